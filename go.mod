@@ -3,6 +3,7 @@ module undercurrent
 go 1.26.0
 
 require (
+	github.com/BurntSushi/toml v1.6.0
 	github.com/apache/arrow-go/v18 v18.8.0
 	github.com/nats-io/nats-server/v2 v2.15.2
 	github.com/nats-io/nats.go v1.55.0

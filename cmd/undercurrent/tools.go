@@ -5,6 +5,7 @@
 package main
 
 import (
+	_ "github.com/BurntSushi/toml"
 	_ "github.com/apache/arrow-go/v18/arrow"
 	_ "github.com/apache/arrow-go/v18/arrow/csv"
 	_ "github.com/apache/arrow-go/v18/arrow/ipc"
