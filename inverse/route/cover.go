@@ -1,0 +1,83 @@
+package route
+
+import (
+	"fmt"
+	"math"
+)
+
+// cover reports runs of usable stations whose cover may be shallower than
+// Settings.MinCover.
+func cover(ps []Placed, set *Settings) []Finding {
+	if set == nil || set.MinCover <= 0 {
+		return nil
+	}
+	k := set.coverK()
+	var out []Finding
+	var run []*Placed
+	sev := SeverityCaution
+	flush := func() {
+		if len(run) == 0 {
+			return
+		}
+		out = append(out, coverFinding(run, sev, set))
+		run, sev = nil, SeverityCaution
+	}
+	for i := range ps {
+		p := &ps[i]
+		if !p.usable() {
+			continue
+		}
+		c := p.Depth - set.SensorHeight
+		if c-k*p.DepthSigma >= set.MinCover {
+			flush()
+			continue
+		}
+		run = append(run, p)
+		if c+k*p.DepthSigma < set.MinCover {
+			sev = SeverityWarning
+		}
+	}
+	flush()
+	return out
+}
+
+func coverFinding(run []*Placed, sev Severity, set *Settings) Finding {
+	low := run[0]
+	for _, p := range run[1:] {
+		if p.Depth < low.Depth {
+			low = p
+		}
+	}
+	c := low.Depth - set.SensorHeight
+	code := "the minimum given (no code named)"
+	if set.CoverCode != "" {
+		code = "the minimum of " + set.CoverCode
+	}
+	where := fmt.Sprintf("at %s (chainage %.1f m)", label(low), low.Chainage)
+	if len(run) > 1 {
+		where = fmt.Sprintf("from %s (chainage %.1f m) to %s (%.1f m), shallowest at %s",
+			label(run[0]), run[0].Chainage, label(run[len(run)-1]), run[len(run)-1].Chainage, label(low))
+	}
+	verdict := "may be shallower than"
+	if sev == SeverityWarning {
+		verdict = "is shallower than"
+	}
+	keys := make([]string, len(run))
+	for i, p := range run {
+		keys[i] = p.Key
+	}
+	return Finding{
+		Kind:     KindShallowCover,
+		Severity: sev,
+		From:     run[0].Chainage,
+		To:       run[len(run)-1].Chainage,
+		Position: low.Point,
+		Keys:     keys,
+		Message: fmt.Sprintf("cover %.2f ± %.2f m %s %s %.2f m %s",
+			c, low.DepthSigma, where, verdict, math.Abs(set.MinCover), code),
+		Values: []Value{
+			{Name: "cover", Value: c, Sigma: low.DepthSigma, Unit: "m"},
+			{Name: "minimum cover", Value: set.MinCover, Unit: "m"},
+		},
+	}
+}

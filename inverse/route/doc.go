@@ -1,0 +1,66 @@
+// Package route turns per-group fits of one conductor into an along-route
+// profile and the findings a crew should act on.
+//
+// The input is plain data: one Station per group (a traverse, a sensor or a
+// time window), each holding the fitted point on the conductor, its
+// direction, current and depth with their one-sigma uncertainties. Build
+// orders the stations along the fitted route, measures chainage along it and
+// looks for four things:
+//
+//   - steps in current: current leaving the conductor between two stations
+//     (a coating defect, a leak to earth, a tee);
+//   - cover shallower than a minimum the caller names;
+//   - stations whose fit is poor or ambiguous;
+//   - dipole-like anomalies: fields better explained by a magnetised
+//     object than by a current.
+//
+// # Ordering and chainage
+//
+// The stations' points are chained by nearest neighbour from the station
+// farthest from their centroid (an end of an open route), then the chain is
+// improved by 2-opt moves (reversing a run of stations whenever that shortens
+// the path). The chain runs in the direction that best agrees with the order
+// in which the caller gave the stations. Chainage is the cumulative horizontal (east,
+// north) distance between successive station points:
+//
+//	c_0 = 0,  c_i = c_(i-1) + |P_i - P_(i-1)|_EN
+//
+// Each station's direction is turned to point along increasing chainage and
+// its current negated when that flips it, so that currents from separately
+// fitted groups share one sign convention. For an AC phasor the phase moves
+// by 180 degrees instead.
+//
+// # Steps in current
+//
+// Between successive usable stations i and i+1 the change in current is
+//
+//	dI = I_(i+1) - I_i,   s = sqrt(s_i^2 + s_(i+1)^2).
+//
+// A gradual loss of current along the route is not a step: on a coated
+// pipeline protected by impressed current the current decays roughly as
+// I(x) = I0 exp(-a x), a = sqrt(R'G') (transmission-line model). Build
+// therefore subtracts the smooth trend g dx, with g the median gradient
+// dI/dx over up to Settings.TrendWindow intervals on either side (skipping
+// the two intervals that share a station with the one tested, so the trend
+// is independent of dI and a step does not leak into its neighbours), and
+// reports a step when
+//
+//	|dI - g dx| > k sqrt(s^2 + (dx s_g)^2)      (k = Settings.StepK, default 3)
+//
+// where s_g^2 = (pi/2) mean(s_k^2/dx_k^2)/m is the large-sample variance of
+// the median of the m neighbouring gradients (the median of m normal values
+// has variance about pi sigma^2 / (2 m)).
+//
+// The step is bracketed between the two stations, whose chainages are the
+// finding's range; its size is dI with sigma s.
+//
+// # Cover
+//
+// Depth is measured below the depth reference of the fit; cover is depth
+// minus Settings.SensorHeight (the sensors' height above ground when the
+// depth reference is the sensors' mean height). No single minimum cover is
+// law: US NEC Table 300.5 asks 600 mm for direct-burial cable up to 1000 V in
+// general locations; UK distribution practice is 450-600 mm for LV and
+// 600-700 mm for 11 kV. The minimum and the name of the code it comes from
+// are settings.
+package route

@@ -1,0 +1,41 @@
+package route_test
+
+import (
+	"fmt"
+
+	"undercurrent/inverse/route"
+)
+
+// Six traverses over the fictional Kestrel Moor gas spur, 25 m apart; about
+// 0.8 A leaves the pipe between the third and the fourth, and the cover is
+// thin at the fifth.
+func ExampleBuild() {
+	currents := []float64{4.02, 3.99, 4.01, 3.18, 3.20, 3.19}
+	depths := []float64{1.31, 1.28, 1.30, 1.27, 0.86, 1.29} // below the sensors
+	var st []route.Station
+	for i, c := range currents {
+		st = append(st, route.Station{
+			Key:          fmt.Sprintf("T%02d", i+1),
+			Point:        [3]float64{0, 25 * float64(i), -depths[i]},
+			Dir:          [3]float64{0, 1, 0},
+			Current:      c,
+			CurrentSigma: 0.03,
+			Depth:        depths[i],
+			DepthSigma:   0.02,
+			OK:           true,
+		})
+	}
+	r, err := route.Build(st, &route.Settings{MinCover: 0.6, CoverCode: "NEC Table 300.5", SensorHeight: 0.3})
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	fmt.Printf("route length %.0f m\n", r.Length)
+	for _, f := range r.Findings {
+		fmt.Printf("%s %s %.0f-%.0f m: %s\n", f.Severity, f.Kind, f.From, f.To, f.Message)
+	}
+	// Output:
+	// route length 125 m
+	// warning current-step 50-75 m: current falls by 0.83 ± 0.042 A between T03 (chainage 50.0 m) and T04 (75.0 m): current leaving the conductor between them
+	// warning shallow-cover 100-100 m: cover 0.56 ± 0.02 m at T05 (chainage 100.0 m) is shallower than 0.60 m the minimum of NEC Table 300.5
+}

@@ -1,0 +1,80 @@
+package route
+
+import "fmt"
+
+// Kind says what a Finding is about.
+type Kind string
+
+// The kinds of finding Build reports.
+const (
+	// KindCurrentStep is a change in current between two stations larger
+	// than its uncertainty: current leaving (or joining) the conductor.
+	KindCurrentStep Kind = "current-step"
+	// KindShallowCover is cover shallower than Settings.MinCover.
+	KindShallowCover Kind = "shallow-cover"
+	// KindPoorFit is a station whose fit failed, is poor or is ambiguous.
+	KindPoorFit Kind = "poor-fit"
+	// KindDipole is a station whose field is better explained by a
+	// magnetised object than by a current.
+	KindDipole Kind = "dipole-anomaly"
+)
+
+// Severity ranks findings for a crew.
+type Severity string
+
+// Severities, from most to least pressing.
+const (
+	// SeverityWarning: act on it (confirmed shallow cover, a clear step).
+	SeverityWarning Severity = "warning"
+	// SeverityCaution: check it (possible shallow cover, a poor fit).
+	SeverityCaution Severity = "caution"
+	// SeverityInfo: worth knowing (a dipole-like object).
+	SeverityInfo Severity = "info"
+)
+
+// rank orders severities for sorting, most pressing first.
+func (s Severity) rank() int {
+	switch s {
+	case SeverityWarning:
+		return 0
+	case SeverityCaution:
+		return 1
+	}
+	return 2
+}
+
+// Value is one quantity behind a finding, with its one-sigma uncertainty
+// (zero when not known).
+type Value struct {
+	Name  string
+	Value float64
+	Sigma float64
+	Unit  string
+}
+
+// String formats v as "name = value ± sigma unit".
+func (v Value) String() string {
+	if v.Sigma > 0 {
+		return fmt.Sprintf("%s = %.3g ± %.2g %s", v.Name, v.Value, v.Sigma, v.Unit)
+	}
+	return fmt.Sprintf("%s = %.3g %s", v.Name, v.Value, v.Unit)
+}
+
+// Finding is something a crew should know or act on, located along the
+// route.
+type Finding struct {
+	Kind     Kind
+	Severity Severity
+	// From and To are the chainage range, m (equal for a single station).
+	// A step lies between the two stations at From and To.
+	From, To float64
+	// Position is the best location, m ENU (the midpoint of a step's
+	// bracket).
+	Position [3]float64
+	// Keys are the groups involved, in route order.
+	Keys []string
+	// Message is one plain sentence for the report.
+	Message string
+	// Values are the numbers behind the finding.
+	Values []Value
+}

@@ -1,0 +1,62 @@
+package route
+
+import (
+	"fmt"
+	"strings"
+)
+
+// quality reports stations whose fit failed, is poor or ambiguous, and
+// stations better explained by a dipole.
+func quality(ps []Placed, set *Settings) []Finding {
+	var out []Finding
+	maxChi := set.maxReducedChi2()
+	for i := range ps {
+		p := &ps[i]
+		if p.Dipole {
+			out = append(out, Finding{
+				Kind:     KindDipole,
+				Severity: SeverityInfo,
+				From:     p.Chainage, To: p.Chainage,
+				Position: p.Point,
+				Keys:     []string{p.Key},
+				Message: fmt.Sprintf("the field at %s (chainage %.1f m) looks like a magnetised object, not a current; it is left out of the current and cover profile",
+					label(p), p.Chainage),
+			})
+		}
+		var why []string
+		var vals []Value
+		if !p.OK {
+			why = append(why, "the fit failed")
+		}
+		if p.Problem != "" {
+			why = append(why, p.Problem)
+		}
+		if p.DOF > 0 && maxChi > 0 && p.Chi2 > 0 {
+			if r := p.Chi2 / float64(p.DOF); r > maxChi {
+				why = append(why, fmt.Sprintf("chi-square per degree of freedom is %.3g (limit %.3g): the model or the noise level does not match the readings", r, maxChi))
+				vals = append(vals, Value{Name: "reduced chi-square", Value: r, Unit: ""})
+			}
+		}
+		if len(why) == 0 {
+			continue
+		}
+		if p.RMS > 0 {
+			vals = append(vals, Value{Name: "rms residual", Value: p.RMS, Unit: "nT"})
+		}
+		use := "used with care"
+		if !p.usable() {
+			use = "not used"
+		}
+		out = append(out, Finding{
+			Kind:     KindPoorFit,
+			Severity: SeverityCaution,
+			From:     p.Chainage, To: p.Chainage,
+			Position: p.Point,
+			Keys:     []string{p.Key},
+			Message: fmt.Sprintf("fit at %s (chainage %.1f m) is poor or ambiguous (%s); %s",
+				label(p), p.Chainage, strings.Join(why, "; "), use),
+			Values: vals,
+		})
+	}
+	return out
+}

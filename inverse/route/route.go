@@ -1,0 +1,264 @@
+package route
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"sort"
+)
+
+// Placed is a station on the route.
+type Placed struct {
+	// Station is the caller's station with Dir made a unit vector
+	// pointing along increasing chainage; Current (or Phase for AC) is
+	// adjusted when that flipped Dir.
+	Station
+	// Chainage is the distance along the route from its first station, m.
+	Chainage float64
+	// Index is the station's index in the slice given to Build.
+	Index int
+	// Flipped is true when Dir was reversed to follow the route.
+	Flipped bool
+}
+
+// Route is the result of Build.
+type Route struct {
+	// Stations are in route order, chainage increasing.
+	Stations []Placed
+	// Length is the chainage of the last station, m.
+	Length float64
+	// Findings are sorted by chainage, the most pressing first at equal
+	// chainage.
+	Findings []Finding
+}
+
+// Build orders stations along the route they trace, measures chainage and
+// reports steps in current, shallow cover, poor fits and dipole-like
+// anomalies (see the package documentation for the rules). It returns an
+// error, naming the station, when there are no stations or a value is not
+// finite or a sigma is negative; the stations slice is not modified.
+func Build(stations []Station, set *Settings) (*Route, error) {
+	if len(stations) == 0 {
+		return nil, errors.New("route: no stations")
+	}
+	for i := range stations {
+		if err := check(&stations[i], i); err != nil {
+			return nil, err
+		}
+	}
+	order := chain(stations)
+	r := &Route{Stations: make([]Placed, len(order))}
+	for k, idx := range order {
+		r.Stations[k] = Placed{Station: stations[idx], Index: idx}
+	}
+	for k := 1; k < len(r.Stations); k++ {
+		r.Stations[k].Chainage = r.Stations[k-1].Chainage + horiz(r.Stations[k-1].Point, r.Stations[k].Point)
+	}
+	r.Length = r.Stations[len(r.Stations)-1].Chainage
+	orient(r.Stations)
+
+	r.Findings = append(r.Findings, steps(r.Stations, set)...)
+	r.Findings = append(r.Findings, cover(r.Stations, set)...)
+	r.Findings = append(r.Findings, quality(r.Stations, set)...)
+	sort.SliceStable(r.Findings, func(i, j int) bool {
+		a, b := &r.Findings[i], &r.Findings[j]
+		if a.From != b.From {
+			return a.From < b.From
+		}
+		return a.Severity.rank() < b.Severity.rank()
+	})
+	return r, nil
+}
+
+// check rejects values that would make the route meaningless.
+func check(s *Station, i int) error {
+	name := fmt.Sprintf("station %d", i)
+	if s.Key != "" {
+		name = fmt.Sprintf("station %d (%q)", i, s.Key)
+	}
+	for a, v := range s.Point {
+		if !finite(v) {
+			return fmt.Errorf("route: %s: point[%d] is %v", name, a, v)
+		}
+	}
+	for a, v := range s.Dir {
+		if !finite(v) {
+			return fmt.Errorf("route: %s: dir[%d] is %v", name, a, v)
+		}
+	}
+	if !s.OK {
+		return nil
+	}
+	vals := []struct {
+		n     string
+		v     float64
+		sigma bool
+	}{
+		{"current", s.Current, false}, {"current sigma", s.CurrentSigma, true},
+		{"depth", s.Depth, false}, {"depth sigma", s.DepthSigma, true},
+		{"phase", s.Phase, false}, {"phase sigma", s.PhaseSigma, true},
+	}
+	for _, q := range vals {
+		if !finite(q.v) {
+			return fmt.Errorf("route: %s: %s is %v", name, q.n, q.v)
+		}
+		if q.sigma && q.v < 0 {
+			return fmt.Errorf("route: %s: %s is negative (%g)", name, q.n, q.v)
+		}
+	}
+	return nil
+}
+
+func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
+
+// horiz is the horizontal (east, north) distance between a and b.
+func horiz(a, b [3]float64) float64 { return math.Hypot(b[0]-a[0], b[1]-a[1]) }
+
+// chain returns the station indices in route order: nearest-neighbour
+// chaining from the station farthest from the centroid, improved by 2-opt,
+// in the direction that best agrees with the input order.
+func chain(st []Station) []int {
+	n := len(st)
+	order := make([]int, n)
+	if n <= 2 {
+		for i := range order {
+			order[i] = i
+		}
+		return order
+	}
+	var ce, cn float64
+	for i := range st {
+		ce += st[i].Point[0]
+		cn += st[i].Point[1]
+	}
+	ce /= float64(n)
+	cn /= float64(n)
+	start, far := 0, -1.0
+	for i := range st {
+		if d := math.Hypot(st[i].Point[0]-ce, st[i].Point[1]-cn); d > far {
+			start, far = i, d
+		}
+	}
+	used := make([]bool, n)
+	order[0], used[start] = start, true
+	for k := 1; k < n; k++ {
+		last := st[order[k-1]].Point
+		best, bd := -1, math.Inf(1)
+		for i := range st {
+			if used[i] {
+				continue
+			}
+			if d := horiz(last, st[i].Point); d < bd {
+				best, bd = i, d
+			}
+		}
+		order[k], used[best] = best, true
+	}
+	twoOpt(st, order)
+
+	// Orient the chain to agree with the caller's order.
+	var corr float64
+	mid := float64(n-1) / 2
+	for k, idx := range order {
+		corr += (float64(k) - mid) * (float64(idx) - mid)
+	}
+	if corr < 0 {
+		for i, j := 0, n-1; i < j; i, j = i+1, j-1 {
+			order[i], order[j] = order[j], order[i]
+		}
+	}
+	return order
+}
+
+// twoOpt improves an open path in place by reversing runs of stations while
+// that shortens it.
+func twoOpt(st []Station, order []int) {
+	n := len(order)
+	d := func(a, b int) float64 {
+		if a < 0 || b >= n {
+			return 0 // open path: no edge beyond the ends
+		}
+		return horiz(st[order[a]].Point, st[order[b]].Point)
+	}
+	const eps = 1e-12
+	for pass := 0; pass < 4*n; pass++ {
+		improved := false
+		for i := 0; i < n-1; i++ {
+			for j := i + 1; j < n; j++ {
+				before := d(i-1, i) + d(j, j+1)
+				after := d(i-1, j) + d(i, j+1)
+				if i == 0 && j == n-1 {
+					continue // reversing the whole path changes nothing
+				}
+				if after < before-eps*(1+before) {
+					for a, b := i, j; a < b; a, b = a+1, b-1 {
+						order[a], order[b] = order[b], order[a]
+					}
+					improved = true
+				}
+			}
+		}
+		if !improved {
+			return
+		}
+	}
+}
+
+// orient makes every station's Dir a unit vector along increasing chainage,
+// adjusting the sign of the current (or the phase for AC) to match.
+func orient(ps []Placed) {
+	n := len(ps)
+	for k := range ps {
+		var t [2]float64
+		if n > 1 {
+			a, b := k-1, k+1
+			if a < 0 {
+				a = 0
+			}
+			if b > n-1 {
+				b = n - 1
+			}
+			t = [2]float64{ps[b].Point[0] - ps[a].Point[0], ps[b].Point[1] - ps[a].Point[1]}
+		}
+		d := ps[k].Dir
+		norm := math.Sqrt(d[0]*d[0] + d[1]*d[1] + d[2]*d[2])
+		if norm == 0 {
+			tn := math.Hypot(t[0], t[1])
+			if tn == 0 {
+				continue
+			}
+			ps[k].Dir = [3]float64{t[0] / tn, t[1] / tn, 0}
+			continue
+		}
+		d = [3]float64{d[0] / norm, d[1] / norm, d[2] / norm}
+		if d[0]*t[0]+d[1]*t[1] < 0 {
+			d = [3]float64{-d[0], -d[1], -d[2]}
+			ps[k].Flipped = true
+			if ps[k].AC {
+				ps[k].Phase = wrapDeg(ps[k].Phase + 180)
+			} else {
+				ps[k].Current = -ps[k].Current
+			}
+		}
+		ps[k].Dir = d
+	}
+}
+
+// wrapDeg wraps an angle into (-180, 180].
+func wrapDeg(a float64) float64 {
+	a = math.Mod(a, 360)
+	if a <= -180 {
+		a += 360
+	} else if a > 180 {
+		a -= 360
+	}
+	return a
+}
+
+// label names a station for messages: its key, or its input index.
+func label(p *Placed) string {
+	if p.Key != "" {
+		return p.Key
+	}
+	return fmt.Sprintf("#%d", p.Index)
+}

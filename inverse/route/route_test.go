@@ -1,0 +1,429 @@
+package route
+
+import (
+	"math"
+	"math/rand/v2"
+	"strings"
+	"testing"
+)
+
+// Cathodic-protection transmission-line model (DOMAIN.md, "Cathodic
+// protection", from memory): current along a coated pipe decays as
+// I(x) = I0 exp(-a x), a = sqrt(R'G'). The values below are invented for the
+// fictional Kestrel Moor gas spur: 10 A drained at chainage 0, a = 2e-3 /m,
+// a traverse every 20 m.
+const (
+	cpI0      = 10.0  // A
+	cpAlpha   = 2e-3  // 1/m
+	cpSpacing = 20.0  // m between traverses
+	cpCount   = 31    // traverses
+	cpSigma   = 0.05  // A, one-sigma current from each fit
+	cpAzimuth = 30.0  // degrees from north, clockwise
+	cpDepth   = 1.2   // m below the sensors
+	chainTol  = 1e-12 // relative: chainage is a sum of exactly computed distances
+)
+
+// spur builds stations along a straight route at cpAzimuth with current
+// cpI0 exp(-a x) plus noise, minus step (A) beyond station stepAfter.
+func spur(seed uint64, step float64, stepAfter int) []Station {
+	rng := rand.New(rand.NewPCG(seed, 1))
+	az := cpAzimuth * math.Pi / 180
+	u := [3]float64{math.Sin(az), math.Cos(az), 0}
+	st := make([]Station, cpCount)
+	for i := range st {
+		x := float64(i) * cpSpacing
+		cur := cpI0 * math.Exp(-cpAlpha*x)
+		if i > stepAfter {
+			cur -= step
+		}
+		st[i] = Station{
+			Key:          key(i),
+			Point:        [3]float64{100 + x*u[0], 200 + x*u[1], -cpDepth},
+			Dir:          u,
+			Current:      cur + cpSigma*rng.NormFloat64(),
+			CurrentSigma: cpSigma,
+			Depth:        cpDepth + 0.01*rng.NormFloat64(),
+			DepthSigma:   0.01,
+			OK:           true,
+		}
+	}
+	return st
+}
+
+// near compares chainages, which are sums of rounded distances.
+func near(a, b float64) bool { return math.Abs(a-b) <= chainTol*(1+math.Abs(b)) }
+
+func key(i int) string { return "T" + string(rune('0'+i/10)) + string(rune('0'+i%10)) }
+
+func count(r *Route, k Kind) int {
+	n := 0
+	for _, f := range r.Findings {
+		if f.Kind == k {
+			n++
+		}
+	}
+	return n
+}
+
+func TestStepFoundAndBracketed(t *testing.T) {
+	const step, after = 1.0, 17 // 1 A leaves between T17 and T18
+	st := spur(7, step, after)
+	// Fits give each traverse an arbitrary sign of direction: flip some.
+	for _, i := range []int{3, 8, 18, 25} {
+		st[i].Dir = [3]float64{-st[i].Dir[0], -st[i].Dir[1], 0}
+		st[i].Current = -st[i].Current
+	}
+	r, err := Build(st, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if n := count(r, KindCurrentStep); n != 1 {
+		for _, f := range r.Findings {
+			t.Log(f.Message)
+		}
+		t.Fatalf("got %d steps, want 1", n)
+	}
+	var f Finding
+	for _, f = range r.Findings {
+		if f.Kind == KindCurrentStep {
+			break
+		}
+	}
+	wantFrom, wantTo := float64(after)*cpSpacing, float64(after+1)*cpSpacing
+	if math.Abs(f.From-wantFrom) > 1e-6 || math.Abs(f.To-wantTo) > 1e-6 {
+		t.Errorf("step bracketed at chainage %g..%g m, want %g..%g", f.From, f.To, wantFrom, wantTo)
+	}
+	if len(f.Keys) != 2 || f.Keys[0] != key(after) || f.Keys[1] != key(after+1) {
+		t.Errorf("step keys %v, want [%s %s]", f.Keys, key(after), key(after+1))
+	}
+	// Expected change: the decay over the interval plus the step.
+	want := cpI0*(math.Exp(-cpAlpha*wantTo)-math.Exp(-cpAlpha*wantFrom)) - step
+	got := f.Values[0]
+	if got.Name != "step" || math.Abs(got.Value-want) > 4*got.Sigma {
+		t.Errorf("step %v, want %.4g within 4 sigma", got, want)
+	}
+	if math.Abs(got.Sigma-math.Sqrt2*cpSigma) > 1e-12 {
+		t.Errorf("step sigma %g, want sqrt(2)*%g", got.Sigma, cpSigma)
+	}
+	if !strings.Contains(f.Message, "falls") || !strings.Contains(f.Message, "leaving") {
+		t.Errorf("message %q does not say current leaves", f.Message)
+	}
+	// Flipped stations now follow the route with positive current.
+	for _, p := range r.Stations {
+		if p.Current <= 0 {
+			t.Errorf("%s: current %g after orientation, want > 0", p.Key, p.Current)
+		}
+		if p.Flipped != (p.Index == 3 || p.Index == 8 || p.Index == 18 || p.Index == 25) {
+			t.Errorf("%s: flipped = %v", p.Key, p.Flipped)
+		}
+	}
+}
+
+// TestNoFalseSteps runs many noisy realisations of the smooth decay and
+// counts intervals called steps. With k = 3 a normal deviate exceeds the
+// limit with probability 0.27% (two-sided); the trend estimate adds noise
+// that the test statistic accounts for only approximately, so allow 1%.
+func TestNoFalseSteps(t *testing.T) {
+	const runs = 200
+	const maxRate = 0.01
+	falses := 0
+	for seed := uint64(0); seed < runs; seed++ {
+		r, err := Build(spur(seed, 0, cpCount), nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		falses += count(r, KindCurrentStep)
+		if seed == 1 && count(r, KindCurrentStep) != 0 {
+			t.Errorf("seed 1: false step on the smooth decay: %v", r.Findings)
+		}
+	}
+	rate := float64(falses) / float64(runs*(cpCount-1))
+	t.Logf("false step rate %.4f over %d intervals", rate, runs*(cpCount-1))
+	if rate > maxRate {
+		t.Errorf("false step rate %.4f, want <= %g", rate, maxRate)
+	}
+}
+
+// Without the trend, the decay itself (0.39 A per interval against a
+// sigma of 0.07 A) is a run of "steps": the trend is what prevents them.
+func TestRawDifferencesFlagDecay(t *testing.T) {
+	r, err := Build(spur(1, 0, cpCount), &Settings{TrendWindow: -1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	// Every interval whose true decay exceeds the 3-sigma limit by a
+	// further 2 sigma must be flagged.
+	flagged := map[float64]bool{}
+	for _, f := range r.Findings {
+		if f.Kind == KindCurrentStep {
+			flagged[math.Round(f.From/cpSpacing)] = true
+		}
+	}
+	s := math.Sqrt2 * cpSigma
+	must := 0
+	for j := 0; j < cpCount-1; j++ {
+		x := float64(j) * cpSpacing
+		if d := cpI0 * (math.Exp(-cpAlpha*x) - math.Exp(-cpAlpha*(x+cpSpacing))); d > 5*s {
+			must++
+			if !flagged[float64(j)] {
+				t.Errorf("interval from %g m (true decay %.3f A) not flagged without a trend", x, d)
+			}
+		}
+	}
+	if must < 3 {
+		t.Fatalf("only %d intervals decay by more than 5 sigma: test data too weak", must)
+	}
+}
+
+func TestChainageStraight(t *testing.T) {
+	st := spur(3, 0, cpCount)
+	r, err := Build(st, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for k, p := range r.Stations {
+		if p.Index != k {
+			t.Fatalf("position %d holds station %d, want %d", k, p.Index, k)
+		}
+		if want := float64(k) * cpSpacing; !near(p.Chainage, want) {
+			t.Errorf("%s chainage %g, want %g", p.Key, p.Chainage, want)
+		}
+	}
+	if want := float64(cpCount-1) * cpSpacing; math.Abs(r.Length-want) > 1e-6 {
+		t.Errorf("length %g, want %g", r.Length, want)
+	}
+}
+
+// An arc given in scrambled order comes out in arc order; its chainage is
+// the sum of the chords (exact geometry).
+func TestOrderCurvedRoute(t *testing.T) {
+	const n, radius = 25, 50.0
+	const span = 1.5 * math.Pi // three quarters of a circle: not sortable by one axis
+	chord := 2 * radius * math.Sin(span/float64(n-1)/2)
+	truth := make([]Station, n)
+	for i := range truth {
+		a := span * float64(i) / float64(n-1)
+		truth[i] = Station{Key: key(i), Point: [3]float64{radius * math.Cos(a), radius * math.Sin(a), -1},
+			Current: 5, CurrentSigma: 0.1, Depth: 1, DepthSigma: 0.05, OK: true}
+	}
+	rng := rand.New(rand.NewPCG(11, 12))
+	perm := rng.Perm(n)
+	st := make([]Station, n)
+	for i, j := range perm {
+		st[i] = truth[j]
+	}
+	r, err := Build(st, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	// Recover the arc index of each placed station.
+	idx := make([]int, n)
+	for k, p := range r.Stations {
+		idx[k] = perm[p.Index]
+	}
+	dir := 1
+	if idx[0] != 0 {
+		dir = -1
+	}
+	for k := range idx {
+		want := k
+		if dir < 0 {
+			want = n - 1 - k
+		}
+		if idx[k] != want {
+			t.Fatalf("route order %v is not the arc order", idx)
+		}
+	}
+	if want := float64(n-1) * chord; math.Abs(r.Length-want) > 1e-9 {
+		t.Errorf("length %g, want %g", r.Length, want)
+	}
+	if count(r, KindCurrentStep) != 0 {
+		t.Errorf("constant current gave steps: %v", r.Findings)
+	}
+}
+
+// Minimum cover: DOMAIN.md lists US NEC Table 300.5, 600 mm for direct-burial
+// cable up to 1000 V in general locations.
+func TestShallowCover(t *testing.T) {
+	const sensor = 0.3 // m above ground
+	st := spur(5, 0, cpCount)
+	for i := range st {
+		st[i].Depth, st[i].DepthSigma = 1.0, 0.02 // cover 0.70 m
+	}
+	for _, i := range []int{5, 6, 7} {
+		st[i].Depth = 0.75 // cover 0.45 m: certainly shallow
+	}
+	st[6].Depth = 0.72        // shallowest of the run
+	st[20].Depth = 0.3 + 0.62 // cover 0.62 m ...
+	st[20].DepthSigma = 0.05  // ... but 2 sigma reaches below 0.60 m
+	st[25].OK = false         // a failed fit is not used for cover
+	st[25].Depth = 0.1
+	set := &Settings{MinCover: 0.6, CoverCode: "NEC Table 300.5", SensorHeight: sensor}
+	r, err := Build(st, set)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var cov []Finding
+	for _, f := range r.Findings {
+		if f.Kind == KindShallowCover {
+			cov = append(cov, f)
+		}
+	}
+	if len(cov) != 2 {
+		t.Fatalf("got %d cover findings, want 2: %+v", len(cov), cov)
+	}
+	w := cov[0]
+	if w.Severity != SeverityWarning || !near(w.From, 5*cpSpacing) || !near(w.To, 7*cpSpacing) {
+		t.Errorf("first cover finding %s %g..%g m, want warning 100..140 m", w.Severity, w.From, w.To)
+	}
+	if math.Abs(w.Values[0].Value-0.42) > 1e-12 || w.Position != st[6].Point {
+		t.Errorf("shallowest cover %v at %v, want 0.42 m at T06", w.Values[0], w.Position)
+	}
+	if !strings.Contains(w.Message, "NEC Table 300.5") {
+		t.Errorf("message %q does not name the code", w.Message)
+	}
+	if c := cov[1]; c.Severity != SeverityCaution || !near(c.From, 20*cpSpacing) {
+		t.Errorf("second cover finding %s at %g m, want caution at 400 m", c.Severity, c.From)
+	}
+	// Without a minimum there is no cover check.
+	r, _ = Build(st, &Settings{SensorHeight: sensor})
+	if n := count(r, KindShallowCover); n != 0 {
+		t.Errorf("cover findings without a minimum: %d", n)
+	}
+}
+
+func TestQualityFindings(t *testing.T) {
+	tests := []struct {
+		name     string
+		edit     func(s *Station)
+		kinds    []Kind
+		contains string
+	}{
+		{"sound", func(s *Station) {}, nil, ""},
+		{"failed", func(s *Station) { s.OK = false; s.Problem = "did not converge" }, []Kind{KindPoorFit}, "did not converge"},
+		{"ambiguous", func(s *Station) { s.Problem = "azimuth unidentifiable" }, []Kind{KindPoorFit}, "used with care"},
+		{"high chi2", func(s *Station) { s.Chi2, s.DOF = 500, 50 }, []Kind{KindPoorFit}, "chi-square per degree of freedom is 10"},
+		{"chi2 fine", func(s *Station) { s.Chi2, s.DOF = 55, 50 }, nil, ""},
+		{"dipole", func(s *Station) { s.Dipole = true }, []Kind{KindDipole}, "magnetised object"},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			st := spur(9, 0, cpCount)
+			tc.edit(&st[12])
+			r, err := Build(st, nil)
+			if err != nil {
+				t.Fatal(err)
+			}
+			var got []Kind
+			for _, f := range r.Findings {
+				got = append(got, f.Kind)
+				if tc.contains != "" && !strings.Contains(f.Message, tc.contains) {
+					t.Errorf("message %q lacks %q", f.Message, tc.contains)
+				}
+				if !near(f.From, 12*cpSpacing) || f.Keys[0] != key(12) {
+					t.Errorf("finding at %g m for %v, want 240 m for T12", f.From, f.Keys)
+				}
+			}
+			if len(got) != len(tc.kinds) {
+				t.Fatalf("kinds %v, want %v", got, tc.kinds)
+			}
+			for i := range got {
+				if got[i] != tc.kinds[i] {
+					t.Errorf("kinds %v, want %v", got, tc.kinds)
+				}
+			}
+		})
+	}
+}
+
+// A failed or dipole station must not create steps: its current is
+// meaningless, and the stations either side still bracket correctly.
+func TestUnusableStationsSkipped(t *testing.T) {
+	st := spur(4, 0, cpCount)
+	st[10].OK, st[10].Current = false, 1000
+	st[11].Dipole, st[11].Current = true, -1000
+	r, err := Build(st, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if n := count(r, KindCurrentStep); n != 0 {
+		t.Errorf("unusable stations produced %d steps", n)
+	}
+}
+
+func TestAC(t *testing.T) {
+	st := spur(2, 0, cpCount)
+	for i := range st {
+		st[i].AC, st[i].Phase, st[i].PhaseSigma = true, 20, 0.5
+	}
+	st[4].Dir = [3]float64{-st[4].Dir[0], -st[4].Dir[1], 0}
+	st[4].Phase = -160
+	r, err := Build(st, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	p := r.Stations[4]
+	if !p.Flipped || math.Abs(p.Phase-20) > 1e-12 || p.Current <= 0 {
+		t.Errorf("flipped AC station: phase %g current %g flipped %v, want phase 20, current > 0", p.Phase, p.Current, p.Flipped)
+	}
+}
+
+func TestBuildErrors(t *testing.T) {
+	nan := math.NaN()
+	tests := []struct {
+		name string
+		st   []Station
+		want string
+	}{
+		{"empty", nil, "no stations"},
+		{"nan point", []Station{{Key: "T01", Point: [3]float64{0, nan, 0}}}, `station 0 ("T01"): point[1] is NaN`},
+		{"inf current", []Station{{OK: true, Current: math.Inf(1)}}, "station 0: current is +Inf"},
+		{"negative sigma", []Station{{Key: "A", OK: true, DepthSigma: -1}}, "depth sigma is negative"},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			_, err := Build(tc.st, nil)
+			if err == nil || !strings.Contains(err.Error(), tc.want) || !strings.HasPrefix(err.Error(), "route: ") {
+				t.Errorf("error %v, want one containing %q", err, tc.want)
+			}
+		})
+	}
+}
+
+func TestInputUntouched(t *testing.T) {
+	st := spur(1, 0, 5)
+	st[2].Dir[0] = -st[2].Dir[0]
+	before := append([]Station(nil), st...)
+	if _, err := Build(st, nil); err != nil {
+		t.Fatal(err)
+	}
+	for i := range st {
+		if st[i] != before[i] {
+			t.Fatalf("station %d modified", i)
+		}
+	}
+}
+
+func BenchmarkBuild31(b *testing.B) {
+	st := spur(1, 1, 15)
+	set := &Settings{MinCover: 0.6}
+	for b.Loop() {
+		if _, err := Build(st, set); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+func BenchmarkBuild1000(b *testing.B) {
+	rng := rand.New(rand.NewPCG(1, 2))
+	st := make([]Station, 1000)
+	for i := range st {
+		st[i] = Station{Point: [3]float64{float64(i) * 5, 10 * math.Sin(float64(i)/50), -1},
+			Current: 5 + 0.01*rng.NormFloat64(), CurrentSigma: 0.01, Depth: 1, DepthSigma: 0.01, OK: true}
+	}
+	for b.Loop() {
+		if _, err := Build(st, nil); err != nil {
+			b.Fatal(err)
+		}
+	}
+}

@@ -1,0 +1,64 @@
+package route
+
+// Settings tunes Build. A nil *Settings or a zero field takes the default
+// given beside it.
+type Settings struct {
+	// StepK is the number of standard deviations a change in current
+	// must exceed, after removing the smooth trend, to be reported as a
+	// step. Zero means 3.
+	StepK float64
+	// TrendWindow is the number of neighbouring intervals on each side
+	// whose median gradient is taken as the smooth trend that is not a
+	// step. Zero means 2; a negative value disables the trend so that
+	// raw differences are tested.
+	TrendWindow int
+	// MinCover is the minimum depth of cover, m. Zero disables the cover
+	// check: no single value is law (see the package documentation).
+	MinCover float64
+	// CoverCode names the code or practice MinCover comes from
+	// ("NEC Table 300.5"), quoted in findings; empty when the user named
+	// none.
+	CoverCode string
+	// SensorHeight is the height of the depth reference above ground, m:
+	// cover = depth - SensorHeight. Zero when depths are already below
+	// ground.
+	SensorHeight float64
+	// CoverK is the number of standard deviations used to call shallow
+	// cover certain: a station whose cover + CoverK*sigma is still below
+	// MinCover is a warning, otherwise a caution. Zero means 2.
+	CoverK float64
+	// MaxReducedChi2 flags stations whose Chi2/DOF exceeds it. Zero means
+	// 4; a negative value disables the check.
+	MaxReducedChi2 float64
+}
+
+func (s *Settings) stepK() float64 {
+	if s == nil || s.StepK <= 0 {
+		return 3
+	}
+	return s.StepK
+}
+
+func (s *Settings) trendWindow() int {
+	if s == nil || s.TrendWindow == 0 {
+		return 2
+	}
+	if s.TrendWindow < 0 {
+		return 0
+	}
+	return s.TrendWindow
+}
+
+func (s *Settings) coverK() float64 {
+	if s == nil || s.CoverK <= 0 {
+		return 2
+	}
+	return s.CoverK
+}
+
+func (s *Settings) maxReducedChi2() float64 {
+	if s == nil || s.MaxReducedChi2 == 0 {
+		return 4
+	}
+	return s.MaxReducedChi2
+}

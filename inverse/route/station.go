@@ -1,0 +1,50 @@
+package route
+
+// Station is the fit of one group (a traverse, a sensor or a time window),
+// reduced to the conductor the route follows. Positions are metres in a
+// local east, north, up frame; currents in amperes, signed along Dir (RMS
+// for AC); depths in metres below the fit's depth reference.
+type Station struct {
+	// Key names the group ("T07", a sensor id, a time window).
+	Key string
+	// Point is a point on the fitted conductor, nearest the centroid of
+	// the group's readings. When the fit failed (OK false) it should hold
+	// the centroid of the readings, so the station can still be placed.
+	Point [3]float64
+	// Dir is the conductor's direction. It need not be a unit vector; a
+	// zero Dir is taken from the route.
+	Dir [3]float64
+	// Current and CurrentSigma are the current along Dir and its one-sigma
+	// uncertainty, A.
+	Current, CurrentSigma float64
+	// AC is true when Current is the RMS of a phasor whose phase is Phase
+	// (degrees), with PhaseSigma.
+	AC                bool
+	Phase, PhaseSigma float64
+	// Depth and DepthSigma are the depth below the depth reference and its
+	// one-sigma uncertainty, m.
+	Depth, DepthSigma float64
+	// RMS is the fit's root-mean-square residual, nT.
+	RMS float64
+	// Chi2 and DOF are the fit's chi-square and degrees of freedom; when
+	// DOF > 0 and Settings.MaxReducedChi2 > 0 a large Chi2/DOF is reported
+	// as a poor fit. Leave them zero when the noise was estimated from the
+	// residuals (Chi2/DOF is then 1 by construction).
+	Chi2 float64
+	DOF  int
+	// OK is false when the fit failed or is unusable; such a station is
+	// placed on the route and reported, but not used for steps or cover.
+	OK bool
+	// Problem says why the fit is poor or ambiguous ("two conductors fit
+	// as well as one", "azimuth unidentifiable"), empty when it is sound.
+	// A station with OK true and a Problem is used but reported.
+	Problem string
+	// Dipole is true when the caller found the group's field better
+	// explained by a point dipole (a magnetised object) than by a current.
+	// Such a station is reported and not used for steps or cover.
+	Dipole bool
+}
+
+// usable reports whether the station's current and depth may be used for
+// steps and cover.
+func (s *Station) usable() bool { return s.OK && !s.Dipole }

@@ -1,0 +1,95 @@
+// Package simulate forward-models magnetometer logs from scenario files: a
+// site with buried conductors, the currents they carry, a survey pattern
+// walked by a sensor, the sensor's noise and distortion, and the Earth's
+// field with its slow daily drift. It serves survey planning (will this
+// current be detectable at this depth with this sensor?), the demo, and the
+// end-to-end tests that check the inverse stages recover what was put in.
+//
+// # Model
+//
+// Every reading is the sum, in nanotesla and local east/north/up axes, of
+//
+//	b(t, r) = E + D (t - t0) / 3600
+//	        + sum over DC conductors  G_k(r) I_k
+//	        + sum over AC conductors  G_k(r) sqrt(2) I_k cos(2 pi f_k t + phi_k)
+//	        + sum over dipoles        F_j(r) m_j
+//
+// where E is the Earth field, D its linear drift per hour, t0 the time of the
+// first reading, I_k the current (RMS for AC) and G_k, F_j the Biot-Savart
+// field per unit strength from the inverse package's forward models
+// (inverse.Line for infinite straight filaments; inverse.Polyline, built on
+// the finite-segment formula of Hanson & Hirshman, Phys. Plasmas 9(10), 4410
+// (2002), with one current per segment; inverse.Dipole for point dipoles).
+// Time t is absolute (Unix seconds), so the AC phasor convention matches the
+// calibrate package's demodulation: a conductor with RMS current I and phase
+// phi produces the complex RMS field G I exp(i phi).
+//
+// The sensor then adds white Gaussian noise of the given standard deviation
+// to each axis and, when a distortion is given, reports
+//
+//	reading = M (b + noise) + offset
+//
+// which is the hard- and soft-iron model the calibrate package inverts.
+//
+// A polyline may carry a different current on each segment. Current that
+// "leaves" the conductor at a vertex is not given a return path: the step is
+// modelled as the field of the conductor alone, which is what a survey over
+// the conductor sees of current leaking to ground spread over a large volume.
+//
+// # Scenario files
+//
+// Scenarios are TOML (https://toml.io), so they carry comments. Lengths are
+// metres, fields nanotesla, currents amperes, angles degrees, frequencies
+// hertz; key names carry their unit. Positions are local east, north, up
+// (ENU) with the ground surface at up = 0, so buried conductors have negative
+// up coordinates. A commented example covering every key is
+// testdata/demo/fenwick-lane.toml in the repository; in short:
+//
+//	name  = "fenwick-lane"            # short name, used for output files
+//	site  = "Harrow Fen substation"   # free text
+//	seed  = 7                         # random seed for the noise
+//	start = "2026-03-14T09:30:00Z"    # RFC 3339 time of the first reading
+//
+//	[origin]                          # optional: geo-reference the log
+//	lat_deg = 52.41                   # WGS84 latitude of local (0, 0, 0)
+//	lon_deg = 0.27
+//	height_m = 2.0
+//
+//	[earth]
+//	field_nt = [400, 19100, -45300]   # east, north, up
+//	drift_nt_per_hour = [1.5, -6, 3]  # optional linear drift
+//
+//	[sensor]
+//	height_m = 0.3                    # sensor height above ground
+//	noise_nt = 1.5                    # one-sigma white noise per axis
+//	sample_rate_hz = 10               # or give survey.sample_spacing_m
+//	offset_nt = [0, 0, 0]             # optional hard-iron offset
+//	matrix = [[1,0,0],[0,1,0],[0,0,1]]  # optional soft-iron matrix
+//
+//	[survey]
+//	pattern = "traverses"             # or "grid"
+//	route = [[0, 0], [80, 10]]        # plan path the traverses cross
+//	count = 31                        # traverses
+//	spacing_m = 5                     # along the route
+//	first_at_m = 0                    # chainage of the first traverse
+//	length_m = 8                      # traverse length, centred on the route
+//	speed_m_s = 1                     # walking speed
+//	turn_s = 10                       # pause between traverses
+//	zigzag = true                     # alternate walking direction
+//
+//	[[conductor]]
+//	name = "feeder"
+//	kind = "polyline"                 # "line", "polyline" or "dipole"
+//	vertices = [[-5, 0, -0.9], [85, 11, -0.9]]
+//	current_a = 40                    # or currents_a = [...] per segment
+//	frequency_hz = 50                 # optional: AC, current_a is RMS
+//	phase_deg = 0
+//
+// Each traverse (or grid line) is written with its own value in the group
+// column ("T01", "T02", ..., or "L01", ... for a grid), so the locate command
+// can fit them one by one with --group-by group.
+//
+// An optional [base] table adds a base station: a fixed magnetometer away from
+// the conductors that sees the same Earth field and drift, for the base
+// correction of the calibrate package (SimulateBase).
+package simulate

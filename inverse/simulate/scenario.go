@@ -1,0 +1,525 @@
+package simulate
+
+import (
+	"bytes"
+	"errors"
+	"fmt"
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+	"time"
+
+	"github.com/BurntSushi/toml"
+)
+
+// Scenario describes a site, its conductors and a survey over it. The TOML
+// key of each field is given in its tag; the package comment describes the
+// file format. Load or Parse build one and check it; a Scenario built in code
+// must be checked with Validate before use.
+type Scenario struct {
+	// Name is a short name, used for output file names ("fenwick-lane").
+	Name string `toml:"name"`
+	// Site is free text naming the place ("Harrow Fen substation").
+	Site string `toml:"site"`
+	// Description is free text.
+	Description string `toml:"description"`
+	// Seed seeds the noise generator; the same scenario and seed give the
+	// same log, byte for byte.
+	Seed int64 `toml:"seed"`
+	// Start is the RFC 3339 time of the first reading; empty means
+	// 2026-01-01T00:00:00Z.
+	Start string `toml:"start"`
+
+	// Origin, when present, geo-references the local frame: local (0, 0, 0)
+	// is this WGS84 point.
+	Origin *Origin `toml:"origin"`
+	// Earth is the steady background field and its drift.
+	Earth Earth `toml:"earth"`
+	// Sensor describes the magnetometer.
+	Sensor Sensor `toml:"sensor"`
+	// Survey describes where the sensor is carried.
+	Survey Survey `toml:"survey"`
+	// Base, when present, describes a base station (see SimulateBase).
+	Base *Base `toml:"base"`
+	// Conductors are the buried sources.
+	Conductors []Conductor `toml:"conductor"`
+
+	// Source is the file the scenario came from, for messages; set by Load
+	// and Parse.
+	Source string `toml:"-"`
+
+	start float64 // Start as Unix seconds, set by Validate
+	lines []Line  // survey lines, set by Validate
+	text  []byte  // the TOML text, for locating keys in messages
+}
+
+// Origin is a WGS84 point.
+type Origin struct {
+	Lat    float64 `toml:"lat_deg"`
+	Lon    float64 `toml:"lon_deg"`
+	Height float64 `toml:"height_m"`
+}
+
+// Earth is the steady background field, as seen by a sensor free of local
+// anomalies, with an optional linear drift standing for the daily variation.
+type Earth struct {
+	// Field is the constant field, nT east, north, up.
+	Field [3]float64 `toml:"field_nt"`
+	// Drift is the rate of change of the field, nT per hour east, north, up.
+	Drift [3]float64 `toml:"drift_nt_per_hour"`
+}
+
+// Sensor describes the magnetometer carried over the site.
+type Sensor struct {
+	// Height is the sensor's height above the ground, m. Zero is allowed
+	// (a sensor lying on the ground).
+	Height float64 `toml:"height_m"`
+	// Noise is the one-sigma white noise per axis, nT.
+	Noise float64 `toml:"noise_nt"`
+	// SampleRate is readings per second. Give it or Survey.SampleSpacing,
+	// not both.
+	SampleRate float64 `toml:"sample_rate_hz"`
+	// Offset is the hard-iron offset added to every reading, nT.
+	Offset [3]float64 `toml:"offset_nt"`
+	// Matrix is the soft-iron matrix applied to the true field; nil means
+	// the identity. Rows are output axes.
+	Matrix *[3][3]float64 `toml:"matrix"`
+}
+
+// Survey is where the sensor goes: traverses across a route, or a grid of
+// parallel lines.
+type Survey struct {
+	// Pattern is "traverses" (the default) or "grid".
+	Pattern string `toml:"pattern"`
+
+	// Route is the plan path (east, north) the traverses cross. When empty
+	// it is the plan view of the first line or polyline conductor.
+	Route [][2]float64 `toml:"route"`
+	// Count is the number of traverses.
+	Count int `toml:"count"`
+	// Spacing is the distance along the route between traverses, m.
+	Spacing float64 `toml:"spacing_m"`
+	// FirstAt is the chainage along the route of the first traverse, m.
+	FirstAt float64 `toml:"first_at_m"`
+	// Length is the length of each traverse, centred on the route, m.
+	Length float64 `toml:"length_m"`
+
+	// Corner is the grid's first corner (east, north), m.
+	Corner [2]float64 `toml:"corner"`
+	// Size is the grid's extent along and across its lines, m.
+	Size [2]float64 `toml:"size_m"`
+	// Azimuth is the direction of the grid lines, degrees clockwise from
+	// north; lines are stacked to the right of the first one.
+	Azimuth float64 `toml:"azimuth_deg"`
+	// LineSpacing is the distance between grid lines, m.
+	LineSpacing float64 `toml:"line_spacing_m"`
+
+	// Speed is the walking speed, m/s; zero means 1 m/s.
+	Speed float64 `toml:"speed_m_s"`
+	// SampleSpacing is the distance between readings along a line, m; an
+	// alternative to Sensor.SampleRate (rate = speed / spacing).
+	SampleSpacing float64 `toml:"sample_spacing_m"`
+	// Turn is the time between the end of one line and the start of the
+	// next, s.
+	Turn float64 `toml:"turn_s"`
+	// Zigzag walks every other line in the opposite direction; nil means
+	// true.
+	Zigzag *bool `toml:"zigzag"`
+}
+
+// Base describes a base station: a fixed sensor away from the conductors
+// logging the Earth field and its drift for the whole survey.
+type Base struct {
+	// Position is the station's place, m ENU; it is recorded in the log.
+	Position [3]float64 `toml:"position"`
+	// SampleRate is readings per second; zero means 1.
+	SampleRate float64 `toml:"sample_rate_hz"`
+	// Noise is the one-sigma white noise per axis, nT.
+	Noise float64 `toml:"noise_nt"`
+	// Offset is a constant difference from the field the rover sees (local
+	// geology, the station's own sensor offset), nT.
+	Offset [3]float64 `toml:"offset_nt"`
+	// Margin is how long the station logs before the first and after the
+	// last rover reading, s; zero means 60.
+	Margin float64 `toml:"margin_s"`
+}
+
+// Conductor is one buried source.
+type Conductor struct {
+	// Name is free text for messages.
+	Name string `toml:"name"`
+	// Kind is "line" (infinite straight filament), "polyline" (connected
+	// finite segments) or "dipole" (a magnetised object such as a buried
+	// steel drum).
+	Kind string `toml:"kind"`
+
+	// Point and Direction define a line: a point on it, m ENU, and its
+	// direction (normalised on use). Current flows along Direction.
+	Point     *[3]float64 `toml:"point"`
+	Direction *[3]float64 `toml:"direction"`
+	// Vertices define a polyline, m ENU; current flows from the first
+	// vertex to the last.
+	Vertices [][3]float64 `toml:"vertices"`
+	// Position and Moment define a dipole: where it is, m ENU, and its
+	// moment, A m^2 east, north, up.
+	Position *[3]float64 `toml:"position"`
+	Moment   *[3]float64 `toml:"moment_a_m2"`
+
+	// Current is the current in a line, or in every segment of a polyline,
+	// A (RMS when Frequency > 0).
+	Current float64 `toml:"current_a"`
+	// Currents gives a polyline one current per segment, A; it overrides
+	// Current.
+	Currents []float64 `toml:"currents_a"`
+	// Frequency is the AC frequency, Hz; zero means DC.
+	Frequency float64 `toml:"frequency_hz"`
+	// Phase is the AC phase at Unix time zero, degrees.
+	Phase float64 `toml:"phase_deg"`
+}
+
+// Limits on what a scenario may ask for, so that a typing slip cannot fill
+// the disk or the memory.
+const (
+	// MaxRows is the most readings Simulate produces (about 0.6 GB of
+	// columns in memory).
+	MaxRows = 10_000_000
+	// maxLines bounds the number of traverses or grid lines.
+	maxLines = 10_000
+)
+
+// defaultStart is the time of the first reading when Start is empty.
+var defaultStart = time.Date(2026, 1, 1, 0, 0, 0, 0, time.UTC)
+
+// Load reads and checks a scenario file.
+func Load(path string) (*Scenario, error) {
+	data, err := os.ReadFile(path)
+	if err != nil {
+		return nil, fmt.Errorf("simulate: %w", err)
+	}
+	return Parse(data, path)
+}
+
+// Parse decodes and checks a scenario from TOML text; name is the file name
+// used in messages. Unknown keys are errors, so that a misspelt key is not
+// silently ignored.
+func Parse(data []byte, name string) (*Scenario, error) {
+	sc := &Scenario{Source: name, text: data}
+	md, err := toml.Decode(string(data), sc)
+	if err != nil {
+		var pe toml.ParseError
+		if errors.As(err, &pe) {
+			return nil, fmt.Errorf("simulate: %s:%d:%d: %s", name, pe.Position.Line, pe.Position.Col, pe.Message)
+		}
+		return nil, fmt.Errorf("simulate: %s: %w", name, err)
+	}
+	if und := md.Undecoded(); len(und) > 0 {
+		k := und[0]
+		return nil, sc.keyErr(k, "unknown key %q (misspelt? see the scenario format in the package documentation)", k.String())
+	}
+	if err := sc.Validate(); err != nil {
+		return nil, err
+	}
+	return sc, nil
+}
+
+// Validate checks the scenario and fills in defaults. Errors name the file,
+// the line when it can be found, and the key.
+func (sc *Scenario) Validate() error {
+	if sc.Name == "" {
+		base := filepath.Base(sc.Source)
+		sc.Name = strings.TrimSuffix(base, filepath.Ext(base))
+		if sc.Name == "" || sc.Name == "." {
+			sc.Name = "scenario"
+		}
+	}
+	sc.start = float64(defaultStart.Unix())
+	if sc.Start != "" {
+		t, err := time.Parse(time.RFC3339Nano, sc.Start)
+		if err != nil {
+			return sc.errAt("", 0, "start", "%q is not an RFC 3339 time such as 2026-03-14T09:30:00Z", sc.Start)
+		}
+		sc.start = float64(t.UnixNano()) / 1e9
+	}
+	if o := sc.Origin; o != nil {
+		if !finite(o.Lat, o.Lon, o.Height) || math.Abs(o.Lat) > 90 || math.Abs(o.Lon) > 180 {
+			return sc.errAt("origin", 0, "lat_deg", "origin (%g, %g, %g) is not a WGS84 latitude, longitude and height", o.Lat, o.Lon, o.Height)
+		}
+	}
+	if !finite(sc.Earth.Field[:]...) || !finite(sc.Earth.Drift[:]...) {
+		return sc.errAt("earth", 0, "field_nt", "earth field and drift must be finite numbers")
+	}
+	if err := sc.validateSensor(); err != nil {
+		return err
+	}
+	if len(sc.Conductors) == 0 {
+		return fmt.Errorf("simulate: %s: no [[conductor]] tables: a scenario needs at least one source", sc.Source)
+	}
+	for i := range sc.Conductors {
+		if err := sc.validateConductor(i); err != nil {
+			return err
+		}
+	}
+	if err := sc.validateBase(); err != nil {
+		return err
+	}
+	lines, err := sc.planLines()
+	if err != nil {
+		return err
+	}
+	sc.lines = lines
+	rate := sc.rate()
+	rows := 0
+	for _, l := range lines {
+		rows += l.samples(sc.speed() / rate)
+		if rows > MaxRows {
+			return sc.errAt("survey", 0, "", "the survey would log more than %d readings: lower the sample rate, the line length or the number of lines", MaxRows)
+		}
+	}
+	return nil
+}
+
+func (sc *Scenario) validateSensor() error {
+	s := &sc.Sensor
+	if !finite(s.Height, s.Noise, s.SampleRate) || s.Height < 0 {
+		return sc.errAt("sensor", 0, "height_m", "sensor height %g m must be a number >= 0 (height above ground)", s.Height)
+	}
+	if s.Noise < 0 {
+		return sc.errAt("sensor", 0, "noise_nt", "noise %g nT must be >= 0", s.Noise)
+	}
+	if !finite(s.Offset[:]...) {
+		return sc.errAt("sensor", 0, "offset_nt", "offset must be finite")
+	}
+	if s.Matrix != nil {
+		for i := range s.Matrix {
+			if !finite(s.Matrix[i][:]...) {
+				return sc.errAt("sensor", 0, "matrix", "matrix must be finite")
+			}
+		}
+	}
+	hasRate, hasSpacing := s.SampleRate != 0, sc.Survey.SampleSpacing != 0
+	switch {
+	case hasRate && hasSpacing:
+		return sc.errAt("sensor", 0, "sample_rate_hz", "give sensor.sample_rate_hz or survey.sample_spacing_m, not both")
+	case !hasRate && !hasSpacing:
+		return sc.errAt("sensor", 0, "sample_rate_hz", "missing: give sensor.sample_rate_hz (readings per second) or survey.sample_spacing_m")
+	case hasRate && (s.SampleRate < 0 || s.SampleRate > 1e6):
+		return sc.errAt("sensor", 0, "sample_rate_hz", "sample rate %g Hz must be in (0, 1e6]", s.SampleRate)
+	case hasSpacing && !(sc.Survey.SampleSpacing > 0) || !finite(sc.Survey.SampleSpacing):
+		return sc.errAt("survey", 0, "sample_spacing_m", "sample spacing %g m must be > 0", sc.Survey.SampleSpacing)
+	}
+	if sp := sc.Survey.Speed; !finite(sp) || sp < 0 {
+		return sc.errAt("survey", 0, "speed_m_s", "speed %g m/s must be > 0", sp)
+	}
+	if t := sc.Survey.Turn; !finite(t) || t < 0 {
+		return sc.errAt("survey", 0, "turn_s", "turn time %g s must be >= 0", t)
+	}
+	return nil
+}
+
+func (sc *Scenario) validateConductor(i int) error {
+	c := &sc.Conductors[i]
+	bad := func(key, format string, a ...any) error {
+		return sc.errAt("conductor", i, key, "conductor %d (%q): %s", i+1, c.Name, fmt.Sprintf(format, a...))
+	}
+	if !finite(c.Current, c.Frequency, c.Phase) || !finite(c.Currents...) {
+		return bad("current_a", "currents, frequency and phase must be finite numbers")
+	}
+	if c.Frequency < 0 {
+		return bad("frequency_hz", "frequency %g Hz must be >= 0 (0 means DC)", c.Frequency)
+	}
+	if c.Frequency > 0 && c.Frequency >= sc.rate()/2 {
+		return bad("frequency_hz", "%g Hz is not below half the sample rate (%g Hz): the log could not resolve it", c.Frequency, sc.rate()/2)
+	}
+	switch c.Kind {
+	case "line":
+		if c.Point == nil || c.Direction == nil {
+			return bad("kind", "a line needs point and direction")
+		}
+		if !finite(c.Point[:]...) || !finite(c.Direction[:]...) || norm(*c.Direction) == 0 {
+			return bad("direction", "direction %v must be a finite non-zero vector", *c.Direction)
+		}
+		if len(c.Currents) > 0 {
+			return bad("currents_a", "currents_a is for polylines; a line takes current_a")
+		}
+	case "polyline":
+		if len(c.Vertices) < 2 {
+			return bad("vertices", "a polyline needs at least 2 vertices, has %d", len(c.Vertices))
+		}
+		for j, v := range c.Vertices {
+			if !finite(v[:]...) {
+				return bad("vertices", "vertex %d is not finite", j+1)
+			}
+			if j > 0 && v == c.Vertices[j-1] {
+				return bad("vertices", "vertices %d and %d coincide", j, j+1)
+			}
+		}
+		if n := len(c.Vertices) - 1; len(c.Currents) > 0 && len(c.Currents) != n {
+			return bad("currents_a", "%d currents for %d segments (one per segment)", len(c.Currents), n)
+		}
+	case "dipole":
+		if c.Position == nil || c.Moment == nil {
+			return bad("kind", "a dipole needs position and moment_a_m2")
+		}
+		if !finite(c.Position[:]...) || !finite(c.Moment[:]...) {
+			return bad("moment_a_m2", "position and moment must be finite")
+		}
+		if c.Frequency != 0 || c.Current != 0 || len(c.Currents) > 0 {
+			return bad("kind", "a dipole is static: it takes moment_a_m2, not currents or a frequency")
+		}
+	case "":
+		return bad("kind", "missing kind: \"line\", \"polyline\" or \"dipole\"")
+	default:
+		return bad("kind", "unknown kind %q: want \"line\", \"polyline\" or \"dipole\"", c.Kind)
+	}
+	// A reading on a conductor is singular; keep the sources below the
+	// sensors.
+	top := math.Inf(-1)
+	switch c.Kind {
+	case "line":
+		if d := *c.Direction; math.Abs(d[2]) < 1e-12*norm(d) {
+			top = c.Point[2]
+		} else {
+			top = math.Inf(1)
+		}
+	case "polyline":
+		for _, v := range c.Vertices {
+			top = math.Max(top, v[2])
+		}
+	case "dipole":
+		top = c.Position[2]
+	}
+	if top >= sc.Sensor.Height {
+		return bad("kind", "the source reaches up to %g m, not below the sensor height %g m (buried sources have up < 0)", top, sc.Sensor.Height)
+	}
+	return nil
+}
+
+func (sc *Scenario) validateBase() error {
+	b := sc.Base
+	if b == nil {
+		return nil
+	}
+	if !finite(b.Position[:]...) || !finite(b.Offset[:]...) || !finite(b.SampleRate, b.Noise, b.Margin) {
+		return sc.errAt("base", 0, "position", "base station values must be finite")
+	}
+	if b.SampleRate < 0 || b.SampleRate > 1e4 {
+		return sc.errAt("base", 0, "sample_rate_hz", "base sample rate %g Hz must be in (0, 1e4]", b.SampleRate)
+	}
+	if b.Noise < 0 || b.Margin < 0 {
+		return sc.errAt("base", 0, "noise_nt", "base noise and margin must be >= 0")
+	}
+	return nil
+}
+
+// rate is the sensor's sample rate, from the sensor or from the spacing.
+func (sc *Scenario) rate() float64 {
+	if sc.Sensor.SampleRate > 0 {
+		return sc.Sensor.SampleRate
+	}
+	if sc.Survey.SampleSpacing > 0 {
+		return sc.speed() / sc.Survey.SampleSpacing
+	}
+	return 1
+}
+
+// speed is the walking speed, m/s.
+func (sc *Scenario) speed() float64 {
+	if sc.Survey.Speed > 0 {
+		return sc.Survey.Speed
+	}
+	return 1
+}
+
+// StartTime is the time of the first reading, Unix seconds.
+func (sc *Scenario) StartTime() float64 { return sc.start }
+
+// keyErr reports an error about a TOML key (from the decoder's metadata),
+// with its line and column when the key can be found in the text.
+func (sc *Scenario) keyErr(k toml.Key, format string, a ...any) error {
+	table, key := "", ""
+	if n := len(k); n > 0 {
+		key = k[n-1]
+		table = strings.Join(k[:n-1], ".")
+	}
+	// A toml.Key does not number the entries of an array of tables, so
+	// accept the key in any of them.
+	if line, col := findKey(sc.text, table, -1, key); line > 0 {
+		return fmt.Errorf("simulate: %s:%d:%d: %s", sc.Source, line, col, fmt.Sprintf(format, a...))
+	}
+	return fmt.Errorf("simulate: %s: %s", sc.Source, fmt.Sprintf(format, a...))
+}
+
+// errAt reports an error about key in table (the index-th [[table]] for
+// arrays of tables), with its line and column when the key is in the text.
+func (sc *Scenario) errAt(table string, index int, key, format string, a ...any) error {
+	msg := fmt.Sprintf(format, a...)
+	if line, col := findKey(sc.text, table, index, key); line > 0 {
+		return fmt.Errorf("simulate: %s:%d:%d: %s", sc.Source, line, col, msg)
+	}
+	where := key
+	if table != "" {
+		where = table + "." + key
+		if key == "" {
+			where = table
+		}
+	}
+	if where == "" {
+		return fmt.Errorf("simulate: %s: %s", sc.Source, msg)
+	}
+	return fmt.Errorf("simulate: %s: %s: %s", sc.Source, where, msg)
+}
+
+// findKey returns the 1-based line and column of the value of key in the
+// given table of TOML text: the index-th [[table]] for arrays of tables (any
+// occurrence when index < 0), the table header itself when key is empty. It
+// understands the plain layout scenario files use (one key per line, tables
+// introduced by [name] or [[name]] headers) and returns 0, 0 when it cannot
+// find the key; it is only used to point at the right line in messages.
+func findKey(text []byte, table string, index int, key string) (line, col int) {
+	cur, count := "", map[string]int{}
+	seen := -1
+	for n, raw := range bytes.Split(text, []byte("\n")) {
+		s := strings.TrimSpace(string(raw))
+		if strings.HasPrefix(s, "[") {
+			name := strings.Trim(strings.SplitN(s, "#", 2)[0], "[] \t")
+			cur = name
+			if strings.HasPrefix(s, "[[") {
+				seen = count[name]
+				count[name]++
+			} else {
+				seen = 0
+			}
+			if key == "" && cur == table && (index < 0 || seen == index) {
+				return n + 1, strings.Index(string(raw), "[") + 1
+			}
+			continue
+		}
+		if cur != table || (index >= 0 && seen != index && table != "") || key == "" {
+			continue
+		}
+		eq := strings.Index(s, "=")
+		if eq < 0 {
+			continue
+		}
+		if strings.Trim(strings.TrimSpace(s[:eq]), `"'`) == key {
+			c := strings.Index(string(raw), "=") + 1
+			for c < len(raw) && (raw[c] == ' ' || raw[c] == '\t') {
+				c++
+			}
+			return n + 1, c + 1
+		}
+	}
+	return 0, 0
+}
+
+func finite(v ...float64) bool {
+	for _, x := range v {
+		if math.IsNaN(x) || math.IsInf(x, 0) {
+			return false
+		}
+	}
+	return true
+}
+
+func norm(v [3]float64) float64 { return math.Sqrt(v[0]*v[0] + v[1]*v[1] + v[2]*v[2]) }
