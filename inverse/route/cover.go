@@ -49,9 +49,9 @@ func coverFinding(run []*Placed, sev Severity, set *Settings) Finding {
 		}
 	}
 	c := low.Depth - set.SensorHeight
-	code := "the minimum given (no code named)"
+	code := "given (no code named)"
 	if set.CoverCode != "" {
-		code = "the minimum of " + set.CoverCode
+		code = "of " + set.CoverCode
 	}
 	where := fmt.Sprintf("at %s (chainage %.1f m)", label(low), low.Chainage)
 	if len(run) > 1 {
@@ -73,7 +73,7 @@ func coverFinding(run []*Placed, sev Severity, set *Settings) Finding {
 		To:       run[len(run)-1].Chainage,
 		Position: low.Point,
 		Keys:     keys,
-		Message: fmt.Sprintf("cover %.2f ± %.2f m %s %s %.2f m %s",
+		Message: fmt.Sprintf("cover %.2f ± %.2f m %s %s the %.2f m minimum %s",
 			c, low.DepthSigma, where, verdict, math.Abs(set.MinCover), code),
 		Values: []Value{
 			{Name: "cover", Value: c, Sigma: low.DepthSigma, Unit: "m"},

@@ -51,7 +51,9 @@
 // the median of the m neighbouring gradients (the median of m normal values
 // has variance about pi sigma^2 / (2 m)).
 //
-// The step is bracketed between the two stations, whose chainages are the
+// Steps are found one at a time, the most significant first, and each one
+// found is left out of the trend of the others, so that a step is never taken
+// for part of the trend. The step is bracketed between the two stations, whose chainages are the
 // finding's range; its size is dI with sigma s.
 //
 // # Cover

@@ -11,7 +11,7 @@ import (
 // thin at the fifth.
 func ExampleBuild() {
 	currents := []float64{4.02, 3.99, 4.01, 3.18, 3.20, 3.19}
-	depths := []float64{1.31, 1.28, 1.30, 1.27, 0.86, 1.29} // below the sensors
+	depths := []float64{1.31, 1.28, 1.30, 1.27, 0.84, 1.29} // below the sensors
 	var st []route.Station
 	for i, c := range currents {
 		st = append(st, route.Station{
@@ -37,5 +37,5 @@ func ExampleBuild() {
 	// Output:
 	// route length 125 m
 	// warning current-step 50-75 m: current falls by 0.83 ± 0.042 A between T03 (chainage 50.0 m) and T04 (75.0 m): current leaving the conductor between them
-	// warning shallow-cover 100-100 m: cover 0.56 ± 0.02 m at T05 (chainage 100.0 m) is shallower than 0.60 m the minimum of NEC Table 300.5
+	// warning shallow-cover 100-100 m: cover 0.54 ± 0.02 m at T05 (chainage 100.0 m) is shallower than the 0.60 m minimum of NEC Table 300.5
 }

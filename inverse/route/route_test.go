@@ -119,6 +119,31 @@ func TestStepFoundAndBracketed(t *testing.T) {
 	}
 }
 
+// Two steps two intervals apart are both found, and neither makes the
+// interval between them look like a step.
+func TestTwoNearbySteps(t *testing.T) {
+	st := spur(8, 0, cpCount)
+	for i := 11; i < cpCount; i++ {
+		st[i].Current -= 0.8 // between T10 and T11
+	}
+	for i := 13; i < cpCount; i++ {
+		st[i].Current -= 0.6 // between T12 and T13
+	}
+	r, err := Build(st, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var at []float64
+	for _, f := range r.Findings {
+		if f.Kind == KindCurrentStep {
+			at = append(at, f.From)
+		}
+	}
+	if len(at) != 2 || !near(at[0], 10*cpSpacing) || !near(at[1], 12*cpSpacing) {
+		t.Errorf("steps at %v m, want [200 240]", at)
+	}
+}
+
 // TestNoFalseSteps runs many noisy realisations of the smooth decay and
 // counts intervals called steps. With k = 3 a normal deviate exceeds the
 // limit with probability 0.27% (two-sided); the trend estimate adds noise

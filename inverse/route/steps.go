@@ -29,15 +29,32 @@ func steps(ps []Placed, set *Settings) []Finding {
 	}
 	k := set.stepK()
 	w := set.trendWindow()
+	// Find steps one at a time, largest first, leaving each one found out
+	// of the trend of the others: a step must not pass for a trend.
+	isStep := make([]bool, m)
+	excess := make([]float64, m)
+	total := make([]float64, m)
+	for {
+		best, bestZ := -1, k
+		for j := 0; j < m; j++ {
+			if isStep[j] || s[j] == 0 {
+				continue // no uncertainty given: nothing can be called significant
+			}
+			g, gs := trend(dI, dx, s, isStep, j, w)
+			excess[j] = dI[j] - g*dx[j]
+			total[j] = math.Hypot(s[j], gs*dx[j])
+			if z := math.Abs(excess[j]) / total[j]; z > bestZ {
+				best, bestZ = j, z
+			}
+		}
+		if best < 0 {
+			break
+		}
+		isStep[best] = true
+	}
 	var out []Finding
 	for j := 0; j < m; j++ {
-		if s[j] == 0 {
-			continue // no uncertainty given: nothing can be called significant
-		}
-		g, gs := trend(dI, dx, s, j, w)
-		excess := dI[j] - g*dx[j]
-		total := math.Hypot(s[j], gs*dx[j])
-		if math.Abs(excess) <= k*total {
+		if !isStep[j] {
 			continue
 		}
 		a, b := u[j], u[j+1]
@@ -56,7 +73,7 @@ func steps(ps []Placed, set *Settings) []Finding {
 				verb, math.Abs(dI[j]), s[j], label(a), a.Chainage, label(b), b.Chainage, why),
 			Values: []Value{
 				{Name: "step", Value: dI[j], Sigma: s[j], Unit: "A"},
-				{Name: "step beyond trend", Value: excess, Sigma: total, Unit: "A"},
+				{Name: "step beyond trend", Value: excess[j], Sigma: total[j], Unit: "A"},
 				{Name: "current before", Value: a.Current, Sigma: a.CurrentSigma, Unit: "A"},
 				{Name: "current after", Value: b.Current, Sigma: b.CurrentSigma, Unit: "A"},
 			},
@@ -67,15 +84,16 @@ func steps(ps []Placed, set *Settings) []Finding {
 }
 
 // trend returns the median gradient of up to w intervals on each side of
-// interval j, and the standard deviation of that median. The two intervals
+// interval j, leaving out intervals already found to be steps, and the
+// standard deviation of that median. The two intervals
 // that share a station with j are skipped, so that the trend is independent
 // of dI[j] and a step in one interval does not leak into its neighbours'
 // tests.
-func trend(dI, dx, s []float64, j, w int) (g, sigma float64) {
+func trend(dI, dx, s []float64, skip []bool, j, w int) (g, sigma float64) {
 	var gs []float64
 	var v float64
 	for k := j - 1 - w; k <= j+1+w; k++ {
-		if k >= j-1 && k <= j+1 || k < 0 || k >= len(dI) || dx[k] <= 0 {
+		if k >= j-1 && k <= j+1 || k < 0 || k >= len(dI) || skip[k] || dx[k] <= 0 {
 			continue
 		}
 		gs = append(gs, dI[k]/dx[k])
