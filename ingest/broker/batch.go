@@ -1,0 +1,188 @@
+package broker
+
+import (
+	"bytes"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"math"
+)
+
+// Batch is one decoded sensor message: consecutive samples of one
+// three-axis sensor of one asset. Fields are in nanotesla in the sensor's
+// own frame (the site file gives each sensor's orientation); times are
+// seconds (Unix seconds for live data).
+type Batch struct {
+	Asset, Sensor string
+	Time          []float64
+	Bx, By, Bz    []float64
+	Temp          []float64 // nil when absent
+}
+
+// Len returns the number of samples.
+func (b *Batch) Len() int { return len(b.Time) }
+
+// Payload encodings, as sent in the Content-Type header. MQTT messages
+// carry no headers, so Decode also recognises each encoding by its first
+// bytes.
+const (
+	ContentJSON  = "application/json"
+	ContentArrow = "application/vnd.apache.arrow.stream"
+)
+
+// ErrMalformed marks payloads that cannot be decoded or fail validation.
+var ErrMalformed = errors.New("malformed payload")
+
+// jsonBatch is the JSON sample-batch payload (see the package documentation).
+type jsonBatch struct {
+	Asset  string    `json:"asset,omitempty"`
+	Sensor string    `json:"sensor,omitempty"`
+	Time   []float64 `json:"time,omitempty"`
+	T0     *float64  `json:"t0,omitempty"`
+	Rate   float64   `json:"rate,omitempty"`
+	Bx     []float64 `json:"bx"`
+	By     []float64 `json:"by"`
+	Bz     []float64 `json:"bz"`
+	Temp   []float64 `json:"temp,omitempty"`
+}
+
+// Decode decodes a payload received on subject uc.data.<asset>.<sensor>.
+// contentType may be empty (MQTT), in which case a payload starting with
+// '{' is JSON and one starting with the Arrow IPC continuation marker
+// 0xFFFFFFFF is an Arrow IPC stream. The batch is validated (see Validate).
+// Errors wrap ErrMalformed and name the subject, the row and the column.
+func Decode(subject, contentType string, data []byte) (*Batch, error) {
+	asset, sensor, err := ParseDataSubject(subject)
+	if err != nil {
+		return nil, fmt.Errorf("%w: %w", ErrMalformed, err)
+	}
+	var b *Batch
+	switch {
+	case contentType == ContentJSON || (contentType == "" && looksJSON(data)):
+		b, err = decodeJSON(subject, data)
+	case contentType == ContentArrow || (contentType == "" && looksArrow(data)):
+		b, err = decodeArrow(subject, data)
+	default:
+		head := data
+		if len(head) > 16 {
+			head = head[:16]
+		}
+		err = fmt.Errorf("broker: %s: unknown payload encoding (content type %q, first bytes %q)", subject, contentType, head)
+	}
+	if err != nil {
+		return nil, fmt.Errorf("%w: %w", ErrMalformed, err)
+	}
+	if b.Asset != "" && b.Asset != asset {
+		return nil, fmt.Errorf("%w: broker: %s: payload names asset %q", ErrMalformed, subject, b.Asset)
+	}
+	if b.Sensor != "" && b.Sensor != sensor {
+		return nil, fmt.Errorf("%w: broker: %s: payload names sensor %q", ErrMalformed, subject, b.Sensor)
+	}
+	b.Asset, b.Sensor = asset, sensor
+	if err := b.Validate(subject); err != nil {
+		return nil, fmt.Errorf("%w: %w", ErrMalformed, err)
+	}
+	return b, nil
+}
+
+func looksJSON(data []byte) bool {
+	t := bytes.TrimLeft(data, " \t\r\n")
+	return len(t) > 0 && t[0] == '{'
+}
+
+func looksArrow(data []byte) bool {
+	return len(data) >= 8 && data[0] == 0xFF && data[1] == 0xFF && data[2] == 0xFF && data[3] == 0xFF
+}
+
+func decodeJSON(subject string, data []byte) (*Batch, error) {
+	var jb jsonBatch
+	dec := json.NewDecoder(bytes.NewReader(data))
+	dec.DisallowUnknownFields()
+	if err := dec.Decode(&jb); err != nil {
+		var se *json.SyntaxError
+		var te *json.UnmarshalTypeError
+		switch {
+		case errors.As(err, &se):
+			line, col := lineCol(data, se.Offset-1) // Offset is just past the bad byte
+			return nil, fmt.Errorf("broker: %s: line %d column %d: %v", subject, line, col, se)
+		case errors.As(err, &te):
+			line, col := lineCol(data, te.Offset)
+			return nil, fmt.Errorf("broker: %s: line %d column %d: field %q: %s is not a %s", subject, line, col, te.Field, te.Value, te.Type)
+		}
+		return nil, fmt.Errorf("broker: %s: %v", subject, err)
+	}
+	b := &Batch{Asset: jb.Asset, Sensor: jb.Sensor, Bx: jb.Bx, By: jb.By, Bz: jb.Bz, Temp: jb.Temp}
+	switch {
+	case jb.Time != nil && jb.T0 != nil:
+		return nil, fmt.Errorf("broker: %s: give either \"time\" or \"t0\" with \"rate\", not both", subject)
+	case jb.Time != nil:
+		b.Time = jb.Time
+	case jb.T0 != nil:
+		if !(jb.Rate > 0) || math.IsInf(jb.Rate, 0) {
+			return nil, fmt.Errorf("broker: %s: column rate: %v is not a positive sample rate", subject, jb.Rate)
+		}
+		b.Time = make([]float64, len(jb.Bx))
+		for i := range b.Time {
+			b.Time[i] = *jb.T0 + float64(i)/jb.Rate
+		}
+	default:
+		return nil, fmt.Errorf("broker: %s: missing \"time\" (or \"t0\" and \"rate\")", subject)
+	}
+	return b, nil
+}
+
+// lineCol converts a byte offset into a 1-based line and column.
+func lineCol(data []byte, off int64) (line, col int) {
+	if off > int64(len(data)) {
+		off = int64(len(data))
+	}
+	line, col = 1, 1
+	for _, c := range data[:off] {
+		if c == '\n' {
+			line++
+			col = 1
+		} else {
+			col++
+		}
+	}
+	return line, col
+}
+
+// Validate checks that the batch is non-empty, that its columns have the
+// same length, that every value is finite and that times strictly increase.
+// where names the message in errors (a subject, or a file and batch).
+func (b *Batch) Validate(where string) error {
+	n := len(b.Time)
+	if n == 0 {
+		return fmt.Errorf("broker: %s: batch has no samples", where)
+	}
+	cols := []struct {
+		name string
+		v    []float64
+		opt  bool
+	}{{"time", b.Time, false}, {"bx", b.Bx, false}, {"by", b.By, false}, {"bz", b.Bz, false}, {"temp", b.Temp, true}}
+	for _, c := range cols {
+		if c.opt && c.v == nil {
+			continue
+		}
+		if len(c.v) != n {
+			return fmt.Errorf("broker: %s: column %s has %d values, column time has %d", where, c.name, len(c.v), n)
+		}
+		for i, x := range c.v {
+			if math.IsNaN(x) || math.IsInf(x, 0) {
+				return fmt.Errorf("broker: %s: row %d: column %s: %v is not a finite number", where, i+1, c.name, x)
+			}
+		}
+	}
+	for i := 1; i < n; i++ {
+		if !(b.Time[i] > b.Time[i-1]) {
+			return fmt.Errorf("broker: %s: row %d: column time: %v does not follow %v (times must increase)", where, i+1, b.Time[i], b.Time[i-1])
+		}
+	}
+	return nil
+}
+
+// EncodeJSON encodes b as a JSON sample batch with explicit times.
+func EncodeJSON(b *Batch) ([]byte, error) {
+	return json.Marshal(jsonBatch{Time: b.Time, Bx: b.Bx, By: b.By, Bz: b.Bz, Temp: b.Temp})
+}

@@ -1,0 +1,119 @@
+package broker
+
+import (
+	"context"
+	"fmt"
+	"time"
+
+	"github.com/nats-io/nats.go"
+	"github.com/nats-io/nats.go/jetstream"
+)
+
+// StreamSettings sizes the streams and buckets; the zero value of each field
+// is documented beside it.
+type StreamSettings struct {
+	// Replicas of every stream and bucket; 0 means 1. Use 3 on a
+	// three-node cluster.
+	Replicas int
+	// DataMaxAge bounds how long raw sensor batches are kept; 0 means 24 h.
+	DataMaxAge time.Duration
+	// Duplicates is the deduplication window of estimates and alarms; 0
+	// means 1 h.
+	Duplicates time.Duration
+	// LeaseTTL is how long a worker's lease on an asset lives without a
+	// refresh; 0 means 5 s.
+	LeaseTTL time.Duration
+	// Memory stores everything in memory instead of files (tests only).
+	Memory bool
+}
+
+// Setup creates or updates the streams and key-value buckets the pipeline
+// uses (see the package documentation) and returns their handles.
+func Setup(ctx context.Context, js jetstream.JetStream, set StreamSettings) (*Stores, error) {
+	if set.Replicas == 0 {
+		set.Replicas = 1
+	}
+	if set.DataMaxAge == 0 {
+		set.DataMaxAge = 24 * time.Hour
+	}
+	if set.Duplicates == 0 {
+		set.Duplicates = time.Hour
+	}
+	if set.LeaseTTL == 0 {
+		set.LeaseTTL = 5 * time.Second
+	}
+	storage := jetstream.FileStorage
+	if set.Memory {
+		storage = jetstream.MemoryStorage
+	}
+	streams := []jetstream.StreamConfig{
+		{Name: StreamData, Subjects: []string{DataPrefix + ".>"}, MaxAge: set.DataMaxAge, Duplicates: 2 * time.Minute},
+		{Name: StreamEstimates, Subjects: []string{EstimatePrefix + ".>"}, Duplicates: set.Duplicates},
+		{Name: StreamAlarms, Subjects: []string{AlarmPrefix + ".>"}, Duplicates: set.Duplicates},
+		{Name: StreamDeadLetter, Subjects: []string{DeadLetterPrefix + ".>"}, Duplicates: set.Duplicates, MaxAge: 7 * 24 * time.Hour},
+	}
+	st := &Stores{JS: js, LeaseTTL: set.LeaseTTL}
+	for _, cfg := range streams {
+		cfg.Storage = storage
+		cfg.Replicas = set.Replicas
+		if _, err := js.CreateOrUpdateStream(ctx, cfg); err != nil {
+			return nil, fmt.Errorf("broker: stream %s: %w", cfg.Name, err)
+		}
+	}
+	kvs := []struct {
+		dst *jetstream.KeyValue
+		cfg jetstream.KeyValueConfig
+	}{
+		{&st.Latest, jetstream.KeyValueConfig{Bucket: BucketLatest, History: 1}},
+		{&st.State, jetstream.KeyValueConfig{Bucket: BucketState, History: 1}},
+		{&st.Lease, jetstream.KeyValueConfig{Bucket: BucketLease, History: 1, TTL: set.LeaseTTL}},
+		{&st.Workers, jetstream.KeyValueConfig{Bucket: BucketWorkers, History: 1, TTL: set.LeaseTTL}},
+	}
+	for _, k := range kvs {
+		k.cfg.Storage = storage
+		k.cfg.Replicas = set.Replicas
+		kv, err := js.CreateOrUpdateKeyValue(ctx, k.cfg)
+		if err != nil {
+			return nil, fmt.Errorf("broker: bucket %s: %w", k.cfg.Bucket, err)
+		}
+		*k.dst = kv
+	}
+	return st, nil
+}
+
+// Stores holds the handles returned by Setup.
+type Stores struct {
+	JS                            jetstream.JetStream
+	Latest, State, Lease, Workers jetstream.KeyValue
+	LeaseTTL                      time.Duration
+}
+
+// Auth holds client credentials; the zero value connects without any.
+type Auth struct {
+	User, Password string
+	Token          string
+}
+
+// Connect dials url (a comma-separated list of nats:// URLs for a cluster)
+// with the credentials in auth. The connection retries and reconnects for
+// ever, so a broker restart does not end the client.
+func Connect(url, name string, auth Auth) (*nats.Conn, error) {
+	opts := []nats.Option{
+		nats.Name(name),
+		nats.MaxReconnects(-1),
+		nats.ReconnectWait(100 * time.Millisecond),
+		nats.RetryOnFailedConnect(false),
+		nats.Timeout(5 * time.Second),
+	}
+	if auth.User != "" {
+		opts = append(opts, nats.UserInfo(auth.User, auth.Password))
+	}
+	if auth.Token != "" {
+		opts = append(opts, nats.Token(auth.Token))
+	}
+	nc, err := nats.Connect(url, opts...)
+	if err != nil {
+		return nil, fmt.Errorf("broker: connect %s: %w", url, err)
+	}
+	return nc, nil
+}
