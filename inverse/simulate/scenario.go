@@ -131,8 +131,6 @@ type Survey struct {
 // Base describes a base station: a fixed sensor away from the conductors
 // logging the Earth field and its drift for the whole survey.
 type Base struct {
-	// Position is the station's place, m ENU; it is recorded in the log.
-	Position [3]float64 `toml:"position"`
 	// SampleRate is readings per second; zero means 1.
 	SampleRate float64 `toml:"sample_rate_hz"`
 	// Noise is the one-sigma white noise per axis, nT.
@@ -162,7 +160,9 @@ type Conductor struct {
 	// vertex to the last.
 	Vertices [][3]float64 `toml:"vertices"`
 	// Position and Moment define a dipole: where it is, m ENU, and its
-	// moment, A m^2 east, north, up.
+	// moment, A m^2 east, north, up. A dipole with a Frequency alternates
+	// (an object magnetised by a cable's alternating field) and Moment is
+	// then RMS; without one it is static (magnetised by the Earth's field).
 	Position *[3]float64 `toml:"position"`
 	Moment   *[3]float64 `toml:"moment_a_m2"`
 
@@ -364,8 +364,8 @@ func (sc *Scenario) validateConductor(i int) error {
 		if !finite(c.Position[:]...) || !finite(c.Moment[:]...) {
 			return bad("moment_a_m2", "position and moment must be finite")
 		}
-		if c.Frequency != 0 || c.Current != 0 || len(c.Currents) > 0 {
-			return bad("kind", "a dipole is static: it takes moment_a_m2, not currents or a frequency")
+		if c.Current != 0 || len(c.Currents) > 0 {
+			return bad("kind", "a dipole takes moment_a_m2, not currents")
 		}
 	case "":
 		return bad("kind", "missing kind: \"line\", \"polyline\" or \"dipole\"")
@@ -400,8 +400,8 @@ func (sc *Scenario) validateBase() error {
 	if b == nil {
 		return nil
 	}
-	if !finite(b.Position[:]...) || !finite(b.Offset[:]...) || !finite(b.SampleRate, b.Noise, b.Margin) {
-		return sc.errAt("base", 0, "position", "base station values must be finite")
+	if !finite(b.Offset[:]...) || !finite(b.SampleRate, b.Noise, b.Margin) {
+		return sc.errAt("base", 0, "", "base station values must be finite")
 	}
 	if b.SampleRate < 0 || b.SampleRate > 1e4 {
 		return sc.errAt("base", 0, "sample_rate_hz", "base sample rate %g Hz must be in (0, 1e4]", b.SampleRate)

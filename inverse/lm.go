@@ -1,0 +1,397 @@
+package inverse
+
+import (
+	"errors"
+	"math"
+
+	"gonum.org/v1/gonum/blas/blas64"
+	"gonum.org/v1/gonum/lapack/lapack64"
+	"gonum.org/v1/gonum/mat"
+)
+
+// lmProblem is a nonlinear least-squares problem min ||r(x)||^2 for the
+// Levenberg-Marquardt engine, with optional simple bounds.
+type lmProblem struct {
+	m, n int
+	// resid writes r(x) (length m). An error rejects the point (the engine shrinks its
+	// step); at the starting point it aborts the fit.
+	resid func(x, r []float64) error
+	// jac writes the m x n Jacobian dr/dx at x; r is r(x) as last computed there.
+	jac func(x, r []float64, j *mat.Dense) error
+	// lower and upper bound x elementwise when non-nil (use +-Inf for free components).
+	lower, upper []float64
+}
+
+type lmSettings struct {
+	maxIter          int
+	ftol, xtol, gtol float64
+	factor           float64 // initial trust radius relative to ||D x0|| (default 1)
+}
+
+func (s lmSettings) withDefaults() lmSettings {
+	if s.maxIter <= 0 {
+		s.maxIter = 200
+	}
+	if s.ftol <= 0 {
+		// Tight: ill-conditioned problems (NIST MGH09) need it for 6 digits. Rounding noise
+		// in the actual reduction is allowed for separately (fnoise).
+		s.ftol = 1e-14
+	}
+	if s.xtol <= 0 {
+		s.xtol = 1e-12
+	}
+	if s.factor <= 0 {
+		// A cautious first trust region (MINPACK's default is 100): on NIST MGH09 from its
+		// first certified start, 100 lets the first steps leap into the b2 -> -inf valley.
+		s.factor = 1
+	}
+	if s.gtol <= 0 {
+		s.gtol = 1e-14
+	}
+	return s
+}
+
+type lmResult struct {
+	x      []float64
+	r      []float64
+	rss    float64
+	j      *mat.Dense // Jacobian at x
+	iter   int
+	nfev   int
+	status Status
+}
+
+// fnoise is the relative rounding noise allowed in the actual reduction of a sum of squares.
+const fnoise = 1e-12
+
+var errLMStart = errors.New("inverse: the model cannot be evaluated at the starting point")
+
+// levmar minimises ||r(x)||^2 by Levenberg-Marquardt with scaled trust-region steps
+// (More, Lecture Notes in Mathematics 630, 105-116, 1978). Each iteration factors the
+// column-scaled Jacobian by Householder QR (never forming J^T J); the trust-region
+// subproblem is then solved exactly on the small triangular factor through its singular
+// value decomposition, which also gives the minimum-norm step when J is rank deficient.
+// Bounds are handled by fixing components that sit on a bound with the gradient pushing
+// outwards, and projecting the trial point onto the box.
+func levmar(p *lmProblem, x0 []float64, set lmSettings) (*lmResult, error) {
+	set = set.withDefaults()
+	m, n := p.m, p.n
+	x := make([]float64, n)
+	copy(x, x0)
+	project(x, p.lower, p.upper)
+	r := make([]float64, m)
+	if err := p.resid(x, r); err != nil {
+		return nil, errors.Join(errLMStart, err)
+	}
+	rss := sumSq(r)
+	if !finite(rss) {
+		return nil, errLMStart
+	}
+	res := &lmResult{nfev: 1}
+	J := mat.NewDense(m, n, nil)
+	diag := make([]float64, n)
+	xt := make([]float64, n)
+	rt := make([]float64, m)
+	step := make([]float64, n)
+	jp := make([]float64, m)
+	free := make([]int, 0, n)
+	aug := make([]float64, m*(n+1))
+	tau := make([]float64, n+1)
+	work := make([]float64, 1)
+	var delta float64
+	status := MaxIterations
+	jacFresh := false
+
+	for iter := 0; iter < set.maxIter; iter++ {
+		res.iter = iter + 1
+		if rss == 0 {
+			status = ConvergedExact
+			break
+		}
+		if !jacFresh {
+			if err := p.jac(x, r, J); err != nil {
+				return nil, err
+			}
+			jacFresh = true
+		}
+		// Column norms, scaling, gradient g = J^T r.
+		free = free[:0]
+		gmax := 0.0
+		rn := math.Sqrt(rss)
+		for j := range n {
+			var cn, g float64
+			for i := range m {
+				v := J.At(i, j)
+				cn += v * v
+				g += v * r[i]
+			}
+			cn = math.Sqrt(cn)
+			if iter == 0 {
+				diag[j] = cn
+				if diag[j] == 0 {
+					diag[j] = 1
+				}
+			} else if cn > diag[j] {
+				diag[j] = cn
+			}
+			atLower := p.lower != nil && x[j] <= p.lower[j] && g > 0
+			atUpper := p.upper != nil && x[j] >= p.upper[j] && g < 0
+			if atLower || atUpper {
+				continue
+			}
+			free = append(free, j)
+			if cn > 0 {
+				gmax = math.Max(gmax, math.Abs(g)/(cn*rn))
+			}
+		}
+		if gmax <= set.gtol || len(free) == 0 {
+			status = ConvergedGradient
+			break
+		}
+		if iter == 0 {
+			var dx float64
+			for j := range n {
+				dx += (diag[j] * x[j]) * (diag[j] * x[j])
+			}
+			delta = set.factor * math.Sqrt(dx)
+			if delta == 0 {
+				delta = set.factor
+			}
+		}
+		// QR of [J_free D^-1 | r] (column major for LAPACK is row major transposed: build
+		// the row-major m x (nf+1) matrix directly).
+		nf := len(free)
+		a := blas64.General{Rows: m, Cols: nf + 1, Stride: nf + 1, Data: aug[:m*(nf+1)]}
+		for i := range m {
+			row := a.Data[i*a.Stride:]
+			for k, j := range free {
+				row[k] = J.At(i, j) / diag[j]
+			}
+			row[nf] = r[i]
+		}
+		lapack64.Geqrf(a, tau[:nf+1], work, -1)
+		if lw := int(work[0]); lw > len(work) {
+			work = make([]float64, lw)
+		}
+		lapack64.Geqrf(a, tau[:nf+1], work, len(work))
+		R := mat.NewDense(nf, nf, nil)
+		qtr := make([]float64, nf)
+		for i := range nf {
+			for k := i; k < nf; k++ {
+				R.Set(i, k, a.Data[i*a.Stride+k])
+			}
+			qtr[i] = a.Data[i*a.Stride+nf]
+		}
+		var svd mat.SVD
+		if !svd.Factorize(R, mat.SVDThin) {
+			status = Stalled
+			break
+		}
+		sv := svd.Values(nil)
+		var U, V mat.Dense
+		svd.UTo(&U)
+		svd.VTo(&V)
+		beta := make([]float64, nf)
+		for k := range nf {
+			var s float64
+			for i := range nf {
+				s += U.At(i, k) * qtr[i]
+			}
+			beta[k] = s
+		}
+		tiny := sv[0] * float64(max(m, n)) * 1e-15
+		ynorm := func(lambda float64) float64 {
+			var s float64
+			for k, sk := range sv {
+				if sk <= tiny {
+					continue
+				}
+				v := sk * beta[k] / (sk*sk + lambda)
+				s += v * v
+			}
+			return math.Sqrt(s)
+		}
+
+		accepted := false
+		for !accepted {
+			lambda := 0.0
+			if y0 := ynorm(0); y0 > delta*1.1 {
+				lambda = solveLambda(sv, beta, tiny, delta, ynorm)
+			}
+			// y = -V diag(s/(s^2+lambda)) beta, step = D^-1 y on the free components.
+			for j := range step {
+				step[j] = 0
+			}
+			for k, sk := range sv {
+				if sk <= tiny {
+					continue
+				}
+				c := -sk * beta[k] / (sk*sk + lambda)
+				for i, j := range free {
+					step[j] += V.At(i, k) * c
+				}
+			}
+			var dpn float64
+			for _, j := range free {
+				dpn += step[j] * step[j]
+				step[j] /= diag[j]
+			}
+			dpn = math.Sqrt(dpn)
+			for j := range n {
+				xt[j] = x[j] + step[j]
+			}
+			project(xt, p.lower, p.upper)
+			// Predicted reduction with the projected step.
+			var dxn float64
+			for j := range n {
+				step[j] = xt[j] - x[j]
+				dxn += (diag[j] * step[j]) * (diag[j] * step[j])
+			}
+			dxn = math.Sqrt(dxn)
+			for i := range m {
+				v := r[i]
+				for j := range n {
+					v += J.At(i, j) * step[j]
+				}
+				jp[i] = v
+			}
+			pred := rss - sumSq(jp)
+			var rssT float64
+			ok := p.resid(xt, rt) == nil
+			res.nfev++
+			if ok {
+				rssT = sumSq(rt)
+				ok = finite(rssT)
+			}
+			rho := -1.0
+			if ok && pred > 0 {
+				rho = (rss - rssT) / pred
+			}
+			// Trust-region update (More 1978, section 7, simplified).
+			if rho < 0.25 {
+				delta = 0.5 * math.Min(delta, math.Max(dxn, 1e-300))
+			} else if rho > 0.75 || lambda == 0 {
+				delta = math.Max(delta, 2*dxn)
+			}
+			var xn float64
+			for j := range n {
+				xn += (diag[j] * x[j]) * (diag[j] * x[j])
+			}
+			xn = math.Sqrt(xn)
+			actRel, predRel := math.Inf(1), pred/rss
+			if ok {
+				actRel = (rss - rssT) / rss
+			}
+			// MINPACK's relative-reduction test, applied whether or not the step is taken.
+			// The actual reduction is compared against rounding noise when that is larger.
+			fconv := math.Abs(actRel) <= math.Max(set.ftol, fnoise) && predRel <= set.ftol && rho <= 2
+			if rho > 1e-4 {
+				accepted = true
+				copy(x, xt)
+				copy(r, rt)
+				rss = rssT
+				jacFresh = false
+				if fconv {
+					status = ConvergedResidual
+					goto done
+				}
+				if dxn <= set.xtol*(xn+set.xtol) {
+					status = ConvergedStep
+					goto done
+				}
+			} else {
+				if fconv {
+					status = ConvergedResidual
+					goto done
+				}
+				if ok && pred <= 0 || dpn == 0 {
+					// No descent is possible from here in floating point.
+					status = Stalled
+					goto done
+				}
+				if delta <= set.xtol*(xn+set.xtol) {
+					status = ConvergedStep
+					goto done
+				}
+			}
+		}
+	}
+done:
+	if !jacFresh {
+		if err := p.jac(x, r, J); err != nil {
+			return nil, err
+		}
+	}
+	res.x, res.r, res.rss, res.j, res.status = x, r, rss, J, status
+	return res, nil
+}
+
+// solveLambda finds lambda > 0 with ||y(lambda)|| = delta (to 1%) for the scaled LM step
+// y(lambda) = -V diag(s/(s^2+lambda)) beta, by safeguarded Newton iteration on
+// 1/||y|| - 1/delta, which is nearly linear in lambda (More 1978, section 5).
+func solveLambda(sv, beta []float64, tiny, delta float64, ynorm func(float64) float64) float64 {
+	var up float64
+	for k, sk := range sv {
+		up += (sk * beta[k]) * (sk * beta[k])
+	}
+	hi := math.Sqrt(up) / delta
+	lo := 0.0
+	lambda := hi * 1e-3
+	for range 60 {
+		var s, ds float64
+		for k, sk := range sv {
+			if sk <= tiny {
+				continue
+			}
+			den := sk*sk + lambda
+			v := sk * beta[k] / den
+			s += v * v
+			ds += -2 * v * v / den
+		}
+		yn := math.Sqrt(s)
+		phi := yn - delta
+		if math.Abs(phi) <= 0.01*delta {
+			return lambda
+		}
+		if phi > 0 {
+			lo = lambda
+		} else {
+			hi = lambda
+		}
+		// d||y||/dlambda = ds/(2||y||); Newton on 1/||y||.
+		dyn := ds / (2 * yn)
+		next := lambda - (yn/delta)*phi/dyn
+		if !(next > lo && next < hi) {
+			next = 0.5 * (lo + hi)
+			if lo == 0 {
+				next = math.Sqrt(math.Max(lo, 1e-300*hi) * hi)
+				if next <= lo || next >= hi {
+					next = 0.5 * hi
+				}
+			}
+		}
+		lambda = next
+	}
+	return lambda
+}
+
+func project(x, lower, upper []float64) {
+	for j := range x {
+		if lower != nil && x[j] < lower[j] {
+			x[j] = lower[j]
+		}
+		if upper != nil && x[j] > upper[j] {
+			x[j] = upper[j]
+		}
+	}
+}
+
+func sumSq(v []float64) float64 {
+	var s float64
+	for _, x := range v {
+		s += x * x
+	}
+	return s
+}
+
+func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }

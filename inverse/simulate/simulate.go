@@ -1,0 +1,264 @@
+package simulate
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"strconv"
+
+	"undercurrent/ingest"
+	"undercurrent/inverse"
+)
+
+// teslaToNT converts the forward models' tesla to nanotesla.
+const teslaToNT = 1e9
+
+// source is a conductor ready to evaluate: field returns its field at r, nT,
+// at full DC strength or at RMS strength for AC.
+type source struct {
+	field func(r [3]float64) [3]float64
+	ac    bool
+	freq  float64 // Hz
+	phase float64 // rad
+}
+
+// sources builds the forward models of the scenario's conductors.
+func (sc *Scenario) sources() []source {
+	out := make([]source, 0, len(sc.Conductors))
+	for _, c := range sc.Conductors {
+		s := source{ac: c.Frequency > 0, freq: c.Frequency, phase: c.Phase * math.Pi / 180}
+		switch c.Kind {
+		case "line":
+			d := *c.Direction
+			n := norm(d)
+			l := inverse.Line{Point: *c.Point, Dir: [3]float64{d[0] / n, d[1] / n, d[2] / n}}
+			cur := c.Current
+			s.field = func(r [3]float64) [3]float64 { return scale(l.Field(r, cur), teslaToNT) }
+		case "polyline":
+			p := inverse.Polyline{Vertices: c.Vertices}
+			cur := c.segmentCurrents()
+			s.field = func(r [3]float64) [3]float64 { return scale(p.Field(r, cur), teslaToNT) }
+		case "dipole":
+			d := inverse.Dipole{Pos: *c.Position}
+			m := *c.Moment
+			s.field = func(r [3]float64) [3]float64 { return scale(d.Field(r, m), teslaToNT) }
+		}
+		out = append(out, s)
+	}
+	return out
+}
+
+// segmentCurrents is the current in each segment of a polyline.
+func (c *Conductor) segmentCurrents() []float64 {
+	if len(c.Currents) > 0 {
+		return c.Currents
+	}
+	cur := make([]float64, len(c.Vertices)-1)
+	for i := range cur {
+		cur[i] = c.Current
+	}
+	return cur
+}
+
+// walk calls visit for every planned reading in time order with its survey
+// line index, time (Unix s) and position (m ENU), and returns the time of
+// the last reading.
+func (sc *Scenario) walk(visit func(line int, t float64, r [3]float64)) float64 {
+	speed, rate := sc.speed(), sc.rate()
+	ds := speed / rate
+	t0, last := sc.start, math.Inf(-1)
+	for i, l := range sc.lines {
+		n := l.samples(ds)
+		length := l.Length()
+		for k := 0; k < n; k++ {
+			d := float64(k) * ds
+			f := 0.0
+			if length > 0 {
+				f = d / length
+			}
+			r := [3]float64{
+				l.From[0] + f*(l.To[0]-l.From[0]),
+				l.From[1] + f*(l.To[1]-l.From[1]),
+				sc.Sensor.Height,
+			}
+			last = t0 + float64(k)/rate
+			if visit != nil {
+				visit(i, last, r)
+			}
+		}
+		// Keep time strictly increasing even with no pause between lines.
+		t0 = math.Max(t0+length/speed+sc.Survey.Turn, last+1/rate)
+	}
+	return last
+}
+
+// Rows is the number of readings Simulate produces.
+func (sc *Scenario) Rows() int {
+	ds := sc.speed() / sc.rate()
+	n := 0
+	for _, l := range sc.lines {
+		n += l.samples(ds)
+	}
+	return n
+}
+
+// Simulate forward-models the survey log of a checked scenario: time (Unix
+// seconds), position (m ENU, sensor height above ground at up = 0), field
+// (nT ENU, sensor axes aligned with east, north, up) and the survey line in
+// the group column. Samples.Origin is set when the scenario is
+// geo-referenced, and Samples.Meta records the scenario ("scenario", "site",
+// "seed", "simulated"). The same scenario gives the same log every time.
+func Simulate(sc *Scenario) (*ingest.Samples, error) {
+	if sc == nil || sc.lines == nil {
+		return nil, errors.New("simulate: scenario not checked: use Load, Parse or Validate first")
+	}
+	n := sc.Rows()
+	s := &ingest.Samples{
+		Source: sc.Source,
+		Time:   make([]float64, 0, n),
+		X:      make([]float64, 0, n), Y: make([]float64, 0, n), Z: make([]float64, 0, n),
+		Bx: make([]float64, 0, n), By: make([]float64, 0, n), Bz: make([]float64, 0, n),
+		Group: make([]string, 0, n),
+		Frame: ingest.FrameENU,
+		Meta:  sc.meta(),
+	}
+	if o := sc.Origin; o != nil {
+		s.Origin = &ingest.Geodetic{Lat: o.Lat, Lon: o.Lon, H: o.Height}
+	}
+	rng := rand.New(rand.NewPCG(uint64(sc.Seed), 0x5eed_f0e1))
+	srcs := sc.sources()
+	sen := sc.Sensor
+	sc.walk(func(line int, t float64, r [3]float64) {
+		b := sc.earth(t)
+		for _, src := range srcs {
+			f := src.field(r)
+			w := 1.0
+			if src.ac {
+				w = math.Sqrt2 * math.Cos(cycles(src.freq, t)*2*math.Pi+src.phase)
+			}
+			b = [3]float64{b[0] + w*f[0], b[1] + w*f[1], b[2] + w*f[2]}
+		}
+		if sen.Noise > 0 {
+			for i := range b {
+				b[i] += sen.Noise * rng.NormFloat64()
+			}
+		}
+		b = sen.distort(b)
+		s.Time = append(s.Time, t)
+		s.X, s.Y, s.Z = append(s.X, r[0]), append(s.Y, r[1]), append(s.Z, r[2])
+		s.Bx, s.By, s.Bz = append(s.Bx, b[0]), append(s.By, b[1]), append(s.Bz, b[2])
+		s.Group = append(s.Group, sc.lines[line].Key)
+	})
+	return s, nil
+}
+
+// SimulateBase forward-models the base station of a checked scenario with a
+// [base] table: the Earth field with its drift, the station's offset and
+// noise, from Base.Margin seconds before the first rover reading to as long
+// after the last. The log has no positions.
+func SimulateBase(sc *Scenario) (*ingest.Samples, error) {
+	if sc == nil || sc.lines == nil {
+		return nil, errors.New("simulate: scenario not checked: use Load, Parse or Validate first")
+	}
+	b := sc.Base
+	if b == nil {
+		return nil, fmt.Errorf("simulate: %s: no [base] table: the scenario has no base station", sc.Source)
+	}
+	rate, margin := b.SampleRate, b.Margin
+	if rate == 0 {
+		rate = 1
+	}
+	if margin == 0 {
+		margin = 60
+	}
+	end := sc.walk(nil) + margin
+	t0 := sc.start - margin
+	n := int(math.Floor((end-t0)*rate)) + 1
+	if n > MaxRows {
+		return nil, fmt.Errorf("simulate: %s: the base station would log %d readings, more than %d", sc.Source, n, MaxRows)
+	}
+	s := &ingest.Samples{
+		Source: sc.Source + " (base station)",
+		Time:   make([]float64, n),
+		Bx:     make([]float64, n), By: make([]float64, n), Bz: make([]float64, n),
+		Frame: ingest.FrameENU,
+		Meta:  sc.meta(),
+	}
+	s.Meta["station"] = "base"
+	rng := rand.New(rand.NewPCG(uint64(sc.Seed), 0xba5e_57a7))
+	for i := range n {
+		t := t0 + float64(i)/rate
+		f := sc.earth(t)
+		for k := range f {
+			f[k] += b.Offset[k]
+			if b.Noise > 0 {
+				f[k] += b.Noise * rng.NormFloat64()
+			}
+		}
+		s.Time[i] = t
+		s.Bx[i], s.By[i], s.Bz[i] = f[0], f[1], f[2]
+	}
+	return s, nil
+}
+
+// earth is the background field at time t, nT.
+func (sc *Scenario) earth(t float64) [3]float64 {
+	h := (t - sc.start) / 3600
+	e, d := sc.Earth.Field, sc.Earth.Drift
+	return [3]float64{e[0] + d[0]*h, e[1] + d[1]*h, e[2] + d[2]*h}
+}
+
+// distort applies the sensor's soft-iron matrix and hard-iron offset.
+func (s Sensor) distort(b [3]float64) [3]float64 {
+	if s.Matrix != nil {
+		m := s.Matrix
+		b = [3]float64{
+			m[0][0]*b[0] + m[0][1]*b[1] + m[0][2]*b[2],
+			m[1][0]*b[0] + m[1][1]*b[1] + m[1][2]*b[2],
+			m[2][0]*b[0] + m[2][1]*b[1] + m[2][2]*b[2],
+		}
+	}
+	return [3]float64{b[0] + s.Offset[0], b[1] + s.Offset[1], b[2] + s.Offset[2]}
+}
+
+// cycles returns the fractional part of f*t, the phase of a tone of
+// frequency f at time t in cycles, without the loss of precision of
+// forming f*t directly when t is a Unix time near 2e9 s: the product is
+// split into its rounded value and the exact rounding error (by a fused
+// multiply-add) before the whole cycles are removed.
+func cycles(f, t float64) float64 {
+	p := f * t
+	e := math.FMA(f, t, -p) // exact: f*t = p + e
+	frac := (p - math.Round(p)) + e
+	return frac - math.Floor(frac)
+}
+
+// meta records the scenario in the log's metadata.
+func (sc *Scenario) meta() map[string]string {
+	m := map[string]string{
+		"scenario":  sc.Name,
+		"simulated": "true",
+		"seed":      strconv.FormatInt(sc.Seed, 10),
+	}
+	if sc.Site != "" {
+		m["site"] = sc.Site
+	}
+	return m
+}
+
+// PeakFields returns, for each conductor, the largest field magnitude it
+// alone produces at the planned readings, nT (RMS for AC): with the sensor
+// noise, a first answer to "will this be detectable?".
+func (sc *Scenario) PeakFields() []float64 {
+	srcs := sc.sources()
+	peak := make([]float64, len(srcs))
+	sc.walk(func(_ int, _ float64, r [3]float64) {
+		for i, src := range srcs {
+			peak[i] = math.Max(peak[i], norm(src.field(r)))
+		}
+	})
+	return peak
+}
+
+func scale(v [3]float64, k float64) [3]float64 { return [3]float64{v[0] * k, v[1] * k, v[2] * k} }
