@@ -1,0 +1,257 @@
+package calibrate
+
+import (
+	"bytes"
+	"crypto/sha256"
+	"encoding/hex"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"strings"
+	"time"
+)
+
+// Version is the calibration file format version this package writes and
+// the only one Load accepts.
+const Version = 1
+
+// Method names recorded in a calibration file.
+const (
+	MethodEllipsoid = "ellipsoid"
+	MethodFlip      = "flip"
+	MethodZero      = "zero"
+)
+
+// Calibration is a sensor correction, corrected = Matrix (raw - Offset), in
+// the sensor frame, with a record of how it was made. It is saved as JSON.
+type Calibration struct {
+	Version int       `json:"version"`
+	Method  string    `json:"method"`
+	Created time.Time `json:"created"`
+	Inputs  []Input   `json:"inputs"`
+	// Offset is the hard-iron (or flip / zero-field) offset, nT.
+	Offset [3]float64 `json:"offset_nt"`
+	// OffsetSigma is its standard error where the method gives one, nT.
+	OffsetSigma *[3]float64 `json:"offset_sigma_nt,omitempty"`
+	// Matrix is the correction matrix (identity for offset-only methods).
+	Matrix [3][3]float64 `json:"matrix"`
+	// Reference is the field magnitude the matrix maps to, nT (ellipsoid).
+	Reference float64 `json:"reference_nt,omitempty"`
+	// Before and After are the spreads of |B| over the calibration log,
+	// raw and corrected (ellipsoid).
+	Before *Spread `json:"before,omitempty"`
+	After  *Spread `json:"after,omitempty"`
+	// Coverage is the orientation coverage of the spin log (ellipsoid).
+	Coverage *Coverage `json:"coverage,omitempty"`
+	Notes    []string  `json:"notes,omitempty"`
+}
+
+// Input records one file a calibration was made from.
+type Input struct {
+	Role    string `json:"role"` // "spin", "flip0", "flip180", "zero"
+	File    string `json:"file"`
+	SHA256  string `json:"sha256"`
+	Samples int    `json:"samples"`
+}
+
+// FileInput returns an Input for path with its SHA-256 checksum.
+func FileInput(role, path string, samples int) (Input, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return Input{}, fmt.Errorf("calibrate: %w", err)
+	}
+	defer f.Close()
+	h := sha256.New()
+	if _, err := io.Copy(h, f); err != nil {
+		return Input{}, fmt.Errorf("calibrate: %s: %w", path, err)
+	}
+	return Input{Role: role, File: path, SHA256: hex.EncodeToString(h.Sum(nil)), Samples: samples}, nil
+}
+
+// FromEllipsoid makes a Calibration from an ellipsoid fit.
+func FromEllipsoid(res *EllipsoidResult, inputs ...Input) *Calibration {
+	before, after := res.Before, res.After
+	c := &Calibration{
+		Version:   Version,
+		Method:    MethodEllipsoid,
+		Created:   time.Now().UTC().Truncate(time.Second),
+		Inputs:    inputs,
+		Offset:    res.Offset,
+		Matrix:    res.Matrix,
+		Reference: res.Radius,
+		Before:    &before,
+		After:     &after,
+		Coverage:  res.Coverage,
+	}
+	c.Notes = append(c.Notes, "fit status: "+res.Status,
+		"the matrix is the symmetric correction; it fixes the sensor frame only up to a rotation")
+	return c
+}
+
+// FromOffset makes an offset-only Calibration (method MethodFlip or
+// MethodZero) with an identity matrix.
+func FromOffset(method string, res *OffsetResult, inputs ...Input) *Calibration {
+	sigma := res.Sigma
+	c := &Calibration{
+		Version:     Version,
+		Method:      method,
+		Created:     time.Now().UTC().Truncate(time.Second),
+		Inputs:      inputs,
+		Offset:      res.Offset,
+		OffsetSigma: &sigma,
+		Matrix:      identity3(),
+	}
+	for k, ok := range res.Determined {
+		if !ok {
+			c.Notes = append(c.Notes, fmt.Sprintf("offset of the %c axis is not determined by this method and is left at zero", "xyz"[k]))
+		}
+	}
+	return c
+}
+
+// Correct applies the calibration to one reading.
+func (c *Calibration) Correct(r [3]float64) [3]float64 {
+	return matVec3(c.Matrix, [3]float64{r[0] - c.Offset[0], r[1] - c.Offset[1], r[2] - c.Offset[2]})
+}
+
+// ApplyColumns corrects three equal-length columns in place.
+// It panics if their lengths differ (a programming mistake).
+func (c *Calibration) ApplyColumns(bx, by, bz []float64) {
+	if len(by) != len(bx) || len(bz) != len(bx) {
+		panic("calibrate: ApplyColumns: columns of different lengths")
+	}
+	m := c.Matrix
+	ox, oy, oz := c.Offset[0], c.Offset[1], c.Offset[2]
+	by, bz = by[:len(bx)], bz[:len(bx)]
+	for i := range bx {
+		x, y, z := bx[i]-ox, by[i]-oy, bz[i]-oz
+		bx[i] = m[0][0]*x + m[0][1]*y + m[0][2]*z
+		by[i] = m[1][0]*x + m[1][1]*y + m[1][2]*z
+		bz[i] = m[2][0]*x + m[2][1]*y + m[2][2]*z
+	}
+}
+
+// Summary returns one line describing the calibration, for reports.
+func (c *Calibration) Summary() string {
+	var b strings.Builder
+	fmt.Fprintf(&b, "%s calibration of %s", c.Method, c.Created.Format("2006-01-02"))
+	if len(c.Inputs) > 0 {
+		var names []string
+		for _, in := range c.Inputs {
+			sum := in.SHA256
+			if len(sum) > 12 {
+				sum = sum[:12]
+			}
+			names = append(names, fmt.Sprintf("%s (sha256 %s)", in.File, sum))
+		}
+		fmt.Fprintf(&b, " from %s", strings.Join(names, ", "))
+	}
+	fmt.Fprintf(&b, ": offset (%.1f, %.1f, %.1f) nT", c.Offset[0], c.Offset[1], c.Offset[2])
+	if c.Before != nil && c.After != nil {
+		fmt.Fprintf(&b, ", |B| spread %.2f -> %.2f nT", c.Before.Std, c.After.Std)
+	}
+	return b.String()
+}
+
+// Validate checks that c is usable: a known version and a finite,
+// invertible correction.
+func (c *Calibration) Validate() error {
+	if c.Version != Version {
+		return fmt.Errorf("version %d is not supported (this build reads version %d)", c.Version, Version)
+	}
+	switch c.Method {
+	case MethodEllipsoid, MethodFlip, MethodZero:
+	default:
+		return fmt.Errorf("method %q is not one of %q, %q, %q", c.Method, MethodEllipsoid, MethodFlip, MethodZero)
+	}
+	for k := 0; k < 3; k++ {
+		if math.IsNaN(c.Offset[k]) || math.IsInf(c.Offset[k], 0) {
+			return fmt.Errorf("offset_nt[%d] is %g", k, c.Offset[k])
+		}
+		for j := 0; j < 3; j++ {
+			if v := c.Matrix[k][j]; math.IsNaN(v) || math.IsInf(v, 0) {
+				return fmt.Errorf("matrix[%d][%d] is %g", k, j, v)
+			}
+		}
+	}
+	m := c.Matrix
+	det := m[0][0]*(m[1][1]*m[2][2]-m[1][2]*m[2][1]) - m[0][1]*(m[1][0]*m[2][2]-m[1][2]*m[2][0]) + m[0][2]*(m[1][0]*m[2][1]-m[1][1]*m[2][0])
+	if math.Abs(det) < 1e-6 {
+		return fmt.Errorf("matrix is singular (determinant %g)", det)
+	}
+	return nil
+}
+
+// Save writes c to path as indented JSON, atomically.
+func (c *Calibration) Save(path string) error {
+	if err := c.Validate(); err != nil {
+		return fmt.Errorf("calibrate: %s: %w", path, err)
+	}
+	data, err := json.MarshalIndent(c, "", "  ")
+	if err != nil {
+		return fmt.Errorf("calibrate: %s: %w", path, err)
+	}
+	data = append(data, '\n')
+	return writeFileAtomic(path, func(w io.Writer) error {
+		_, err := w.Write(data)
+		return err
+	})
+}
+
+// Load reads a calibration file written by Save. It rejects unknown
+// versions, unknown fields and unusable corrections with an error naming
+// the file (and line and column for JSON errors).
+func Load(path string) (*Calibration, error) {
+	data, err := os.ReadFile(path)
+	if err != nil {
+		return nil, fmt.Errorf("calibrate: %w", err)
+	}
+	var probe struct {
+		Version *int `json:"version"`
+	}
+	if err := json.Unmarshal(data, &probe); err != nil {
+		return nil, jsonError(path, data, err)
+	}
+	if probe.Version == nil {
+		return nil, fmt.Errorf("calibrate: %s: no \"version\" field: not a calibration file", path)
+	}
+	if *probe.Version != Version {
+		return nil, fmt.Errorf("calibrate: %s: calibration file version %d is not supported (this build reads version %d)", path, *probe.Version, Version)
+	}
+	dec := json.NewDecoder(bytes.NewReader(data))
+	dec.DisallowUnknownFields()
+	var c Calibration
+	if err := dec.Decode(&c); err != nil {
+		return nil, jsonError(path, data, err)
+	}
+	if err := c.Validate(); err != nil {
+		return nil, fmt.Errorf("calibrate: %s: %w", path, err)
+	}
+	return &c, nil
+}
+
+// jsonError adds the file name and, when the error carries an offset, the
+// line and column.
+func jsonError(path string, data []byte, err error) error {
+	var off int64 = -1
+	var se *json.SyntaxError
+	var te *json.UnmarshalTypeError
+	switch {
+	case errors.As(err, &se):
+		off = se.Offset
+	case errors.As(err, &te):
+		off = te.Offset
+	}
+	if off < 0 {
+		return fmt.Errorf("calibrate: %s: %w", path, err)
+	}
+	if off > int64(len(data)) {
+		off = int64(len(data))
+	}
+	line := 1 + bytes.Count(data[:off], []byte("\n"))
+	col := int(off) - bytes.LastIndexByte(data[:off], '\n')
+	return fmt.Errorf("calibrate: %s:%d:%d: %w", path, line, col, err)
+}

@@ -1,0 +1,170 @@
+package calibrate
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"strings"
+
+	"gonum.org/v1/gonum/mat"
+)
+
+// CoverageSettings sets how much of the sphere of orientations a spin log
+// must cover. A nil *CoverageSettings or a zero field takes the default.
+type CoverageSettings struct {
+	// MinEigen is the smallest acceptable eigenvalue of the scatter matrix
+	// of unit field directions, mean(u uᵀ). Even coverage gives 1/3 for all
+	// three; readings turned about one axis only give one near 0.
+	// Zero means 0.05.
+	MinEigen float64
+	// MinCap is the smallest acceptable fraction of readings in each of the
+	// six caps of half-angle CapAngle around ±x, ±y, ±z. Even coverage
+	// gives 0.25 for a 60 degree cap. Zero means 0.02.
+	MinCap float64
+	// CapAngle is the cap half-angle in degrees. Zero means 60.
+	CapAngle float64
+	// MinSamples is the fewest readings accepted. Zero means 30.
+	MinSamples int
+}
+
+func (s *CoverageSettings) withDefaults() CoverageSettings {
+	var c CoverageSettings
+	if s != nil {
+		c = *s
+	}
+	if c.MinEigen == 0 {
+		c.MinEigen = 0.05
+	}
+	if c.MinCap == 0 {
+		c.MinCap = 0.02
+	}
+	if c.CapAngle == 0 {
+		c.CapAngle = 60
+	}
+	if c.MinSamples == 0 {
+		c.MinSamples = 30
+	}
+	return c
+}
+
+// Coverage describes how evenly a spin log covers the orientations.
+type Coverage struct {
+	N int `json:"n"`
+	// Centre is the rough centre used (mid-range of each axis), nT.
+	Centre [3]float64 `json:"centre_nt"`
+	// Eigen holds the eigenvalues of mean(u uᵀ) in ascending order and
+	// Weakest the unit eigenvector of the smallest: the direction, in the
+	// sensor frame, least visited by the field.
+	Eigen   [3]float64 `json:"eigen"`
+	Weakest [3]float64 `json:"weakest"`
+	// Caps holds the fraction of readings whose field direction lies within
+	// the cap angle of +x, -x, +y, -y, +z, -z (sensor frame).
+	Caps [6]float64 `json:"caps"`
+}
+
+var capNames = [6]string{"+x", "-x", "+y", "-y", "+z", "-z"}
+
+// ErrCoverage is wrapped by the error CheckCoverage returns when a spin log
+// does not cover enough orientations.
+var ErrCoverage = errors.New("spin log does not cover enough orientations")
+
+// CheckCoverage measures the coverage of readings (sensor frame, nT) and
+// returns an error wrapping ErrCoverage that says what is missing when it
+// falls short of set. The Coverage is returned in both cases.
+func CheckCoverage(readings [][3]float64, set *CoverageSettings) (*Coverage, error) {
+	cs := set.withDefaults()
+	cov := &Coverage{N: len(readings)}
+	if len(readings) < cs.MinSamples {
+		return cov, fmt.Errorf("calibrate: %w: %d readings, want at least %d", ErrCoverage, len(readings), cs.MinSamples)
+	}
+	var lo, hi [3]float64
+	for k := 0; k < 3; k++ {
+		lo[k], hi[k] = math.Inf(1), math.Inf(-1)
+	}
+	for _, r := range readings {
+		for k := 0; k < 3; k++ {
+			lo[k] = math.Min(lo[k], r[k])
+			hi[k] = math.Max(hi[k], r[k])
+		}
+	}
+	for k := 0; k < 3; k++ {
+		cov.Centre[k] = 0.5 * (lo[k] + hi[k])
+	}
+	cosCap := math.Cos(cs.CapAngle * math.Pi / 180)
+	var scat [3][3]float64
+	var caps [6]int
+	used := 0
+	for _, r := range readings {
+		u := [3]float64{r[0] - cov.Centre[0], r[1] - cov.Centre[1], r[2] - cov.Centre[2]}
+		n := norm3(u)
+		if n == 0 || math.IsNaN(n) || math.IsInf(n, 0) {
+			continue
+		}
+		used++
+		for k := 0; k < 3; k++ {
+			u[k] /= n
+		}
+		for i := 0; i < 3; i++ {
+			for j := 0; j < 3; j++ {
+				scat[i][j] += u[i] * u[j]
+			}
+			if u[i] > cosCap {
+				caps[2*i]++
+			}
+			if -u[i] > cosCap {
+				caps[2*i+1]++
+			}
+		}
+	}
+	if used < cs.MinSamples {
+		return cov, fmt.Errorf("calibrate: %w: %d usable readings, want at least %d", ErrCoverage, used, cs.MinSamples)
+	}
+	sym := mat.NewSymDense(3, nil)
+	for i := 0; i < 3; i++ {
+		for j := i; j < 3; j++ {
+			sym.SetSym(i, j, scat[i][j]/float64(used))
+		}
+	}
+	var eig mat.EigenSym
+	if !eig.Factorize(sym, true) {
+		return cov, fmt.Errorf("calibrate: coverage: eigen-decomposition failed")
+	}
+	vals := eig.Values(nil)
+	var vecs mat.Dense
+	eig.VectorsTo(&vecs)
+	copy(cov.Eigen[:], vals)
+	for k := 0; k < 3; k++ {
+		cov.Weakest[k] = vecs.At(k, 0)
+	}
+	// Make the printed direction point mostly positive, for readability.
+	if cov.Weakest[0]+cov.Weakest[1]+cov.Weakest[2] < 0 {
+		for k := range cov.Weakest {
+			cov.Weakest[k] = -cov.Weakest[k]
+		}
+	}
+	for i := range caps {
+		cov.Caps[i] = float64(caps[i]) / float64(used)
+	}
+
+	var problems []string
+	if cov.Eigen[0] < cs.MinEigen {
+		problems = append(problems, fmt.Sprintf(
+			"the readings lie close to a plane (smallest direction-scatter eigenvalue %.3f, want at least %.3f; even coverage gives 0.333): the sensor was turned about one axis only; also point its axis near (%.2f, %.2f, %.2f) along and against the field",
+			cov.Eigen[0], cs.MinEigen, cov.Weakest[0], cov.Weakest[1], cov.Weakest[2]))
+	}
+	var missing []string
+	for i, f := range cov.Caps {
+		if f < cs.MinCap {
+			missing = append(missing, fmt.Sprintf("%s (%.1f%%)", capNames[i], 100*f))
+		}
+	}
+	if len(missing) > 0 {
+		problems = append(problems, fmt.Sprintf(
+			"too few readings with the sensor's %s axis within %g degrees of the field (want at least %.1f%% each; even coverage gives %.0f%%)",
+			strings.Join(missing, ", "), cs.CapAngle, 100*cs.MinCap, 100*(1-cosCap)/2))
+	}
+	if len(problems) > 0 {
+		return cov, fmt.Errorf("calibrate: %w: %s", ErrCoverage, strings.Join(problems, "; "))
+	}
+	return cov, nil
+}

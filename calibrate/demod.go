@@ -1,0 +1,618 @@
+package calibrate
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"math/cmplx"
+	"sort"
+
+	"gonum.org/v1/gonum/dsp/fourier"
+	"gonum.org/v1/gonum/mat"
+)
+
+// Window is one demodulated AC window. B is the complex RMS field per axis
+// in nT (E, N, U), referenced to absolute time:
+//
+//	b(t) = √2 Re(B exp(i 2π Freq t)),
+//
+// with t the log's time column.
+type Window struct {
+	Time  float64       // centre time, s
+	Pos   [3]float64    // mean position, m ENU
+	B     [3]complex128 // complex RMS field per axis, nT
+	Sigma [3]float64    // one-sigma of |B| per axis from the fit residuals, nT
+	Freq  float64       // Hz used (given or estimated)
+	Group string        // group of the samples (windows never straddle groups)
+	N     int           // samples in the window
+}
+
+// DemodSettings controls Demodulate. A nil *DemodSettings or a zero field
+// takes the default.
+type DemodSettings struct {
+	// Freq is the signal frequency, Hz. Zero estimates it from the log
+	// (spectral peak above MinFreq, refined by a four-parameter fit).
+	Freq float64
+	// EstimateFreq re-estimates the frequency in every window by the
+	// four-parameter fit (IEEE Std 1057 / 1241), starting from Freq.
+	EstimateFreq bool
+	// Window is the window length, s. Zero means ten cycles of Freq.
+	Window float64
+	// Step is the hop between window starts, s. Zero means Window (no
+	// overlap).
+	Step float64
+	// Harmonics lists extra harmonics fitted alongside the fundamental
+	// (3 for the third, ...); their phasors go to DemodResult.Harmonics.
+	Harmonics []int
+	// Drift adds a linear term per window for slow drift (the constant
+	// term, which absorbs the Earth's field, is always fitted).
+	Drift bool
+	// Band is the frequency error tolerated before a drift warning, Hz.
+	// Zero means 0.1/Window, where the three-parameter fit loses about
+	// 1.6% of the amplitude.
+	Band float64
+	// MinCycles is the fewest cycles per window accepted without a
+	// warning. Zero means 3.
+	MinCycles float64
+	// MinFreq is the lowest frequency searched when Freq is zero, Hz.
+	// Zero means 5.
+	MinFreq float64
+}
+
+// DemodResult is the outcome of Demodulate.
+type DemodResult struct {
+	Windows []Window
+	// Harmonics holds, per window, the phasors of each requested harmonic
+	// (nil when none were asked for), referenced to absolute time like B.
+	Harmonics [][][3]complex128
+	// Freq is the nominal frequency used, Hz (given or estimated).
+	Freq float64
+	// DriftHz is the median apparent frequency error seen from the phase
+	// advance between consecutive windows at a fixed frequency (zero with
+	// EstimateFreq, where each window carries its own Freq).
+	DriftHz float64
+	// Uniform and General count the windows demodulated with the shared
+	// precomputed basis and with a basis built from their own timestamps.
+	Uniform, General int
+	// Dropped counts samples that fell in no full window (run tails).
+	Dropped  int
+	Warnings []string
+}
+
+// Columns is a log as plain columns, the input of DemodulateColumns.
+// Pos and Group may be nil.
+type Columns struct {
+	Time  []float64
+	B     [3][]float64
+	Pos   [3][]float64
+	Group []string
+}
+
+func (c *Columns) check() error {
+	n := len(c.Time)
+	for k := 0; k < 3; k++ {
+		if len(c.B[k]) != n {
+			return fmt.Errorf("calibrate: field column %d has %d rows, time has %d", k, len(c.B[k]), n)
+		}
+		if c.Pos[k] != nil && len(c.Pos[k]) != n {
+			return fmt.Errorf("calibrate: position column %d has %d rows, time has %d", k, len(c.Pos[k]), n)
+		}
+	}
+	if c.Group != nil && len(c.Group) != n {
+		return fmt.Errorf("calibrate: group column has %d rows, time has %d", len(c.Group), n)
+	}
+	for i := 0; i < n; i++ {
+		if math.IsNaN(c.Time[i]) || math.IsInf(c.Time[i], 0) {
+			return fmt.Errorf("calibrate: row %d: time is %g", i, c.Time[i])
+		}
+		for k := 0; k < 3; k++ {
+			if v := c.B[k][i]; math.IsNaN(v) || math.IsInf(v, 0) {
+				return fmt.Errorf("calibrate: row %d: column %s is %g", i, [3]string{"bx", "by", "bz"}[k], v)
+			}
+		}
+	}
+	return nil
+}
+
+// run is a stretch of rows [lo, hi) in one group with increasing times.
+type run struct{ lo, hi int }
+
+// runs splits the log at group changes and at non-increasing times.
+func (c *Columns) runs() []run {
+	var out []run
+	lo := 0
+	for i := 1; i <= len(c.Time); i++ {
+		if i == len(c.Time) || c.Time[i] <= c.Time[i-1] || (c.Group != nil && c.Group[i] != c.Group[i-1]) {
+			out = append(out, run{lo, i})
+			lo = i
+		}
+	}
+	return out
+}
+
+// sampleInterval is the median positive time step within runs.
+func (c *Columns) sampleInterval(runs []run) float64 {
+	var d []float64
+	for _, r := range runs {
+		for i := r.lo + 1; i < r.hi; i++ {
+			d = append(d, c.Time[i]-c.Time[i-1])
+			if len(d) >= 100000 {
+				break
+			}
+		}
+	}
+	if len(d) == 0 {
+		return 0
+	}
+	sort.Float64s(d)
+	return d[len(d)/2]
+}
+
+// DemodulateColumns fits a sine (three-parameter, or four-parameter with
+// EstimateFreq) to each axis in sliding windows and returns one Window
+// each, with warnings for too few cycles and frequency drift. Windows hold
+// a whole number of samples, never straddle a group or a break in time,
+// and a run's tail shorter than a window is dropped.
+func DemodulateColumns(c *Columns, set *DemodSettings) (*DemodResult, error) {
+	var ds DemodSettings
+	if set != nil {
+		ds = *set
+	}
+	if err := c.check(); err != nil {
+		return nil, err
+	}
+	if ds.Freq < 0 || math.IsNaN(ds.Freq) || math.IsInf(ds.Freq, 0) {
+		return nil, fmt.Errorf("calibrate: demodulate: frequency %g Hz is not positive", ds.Freq)
+	}
+	if ds.Window < 0 || ds.Step < 0 || ds.Band < 0 || ds.MinCycles < 0 {
+		return nil, errors.New("calibrate: demodulate: window, step, band and cycles must not be negative")
+	}
+	for _, h := range ds.Harmonics {
+		if h < 2 {
+			return nil, fmt.Errorf("calibrate: demodulate: harmonic %d, want 2 or more", h)
+		}
+	}
+	if ds.MinCycles == 0 {
+		ds.MinCycles = 3
+	}
+	if ds.MinFreq == 0 {
+		ds.MinFreq = 5
+	}
+	runs := c.runs()
+	dt := c.sampleInterval(runs)
+	if !(dt > 0) {
+		return nil, errors.New("calibrate: demodulate: fewer than two samples in time order")
+	}
+	fs := 1 / dt
+	res := &DemodResult{}
+	if ds.Freq == 0 {
+		f, err := estimateFreq(c, runs, dt, ds.MinFreq)
+		if err != nil {
+			return nil, err
+		}
+		ds.Freq = f
+		res.Warnings = append(res.Warnings, fmt.Sprintf("frequency not given: estimated %.4f Hz from the log", f))
+	}
+	res.Freq = ds.Freq
+	maxH := 1
+	for _, h := range ds.Harmonics {
+		maxH = max(maxH, h)
+	}
+	if float64(maxH)*ds.Freq >= fs/2 {
+		return nil, fmt.Errorf("calibrate: demodulate: %g Hz (harmonic %d of %g Hz) is at or above the Nyquist frequency %g Hz of the log", float64(maxH)*ds.Freq, maxH, ds.Freq, fs/2)
+	}
+	if ds.Window == 0 {
+		ds.Window = 10 / ds.Freq
+	}
+	if ds.Step == 0 {
+		ds.Step = ds.Window
+	}
+	if ds.Band == 0 {
+		ds.Band = 0.1 / ds.Window
+	}
+	N := int(math.Round(ds.Window / dt))
+	hop := max(1, int(math.Round(ds.Step/dt)))
+	p := 3 + 2*len(ds.Harmonics)
+	if ds.Drift {
+		p++
+	}
+	if N <= p+1 {
+		return nil, fmt.Errorf("calibrate: demodulate: a %g s window holds %d samples at %g Hz sampling, too few for %d parameters", ds.Window, N, fs, p)
+	}
+	if cyc := ds.Freq * float64(N) * dt; cyc < ds.MinCycles {
+		res.Warnings = append(res.Warnings, fmt.Sprintf("a %g s window holds only %.2f cycles of %g Hz (want at least %g): amplitudes leak from the Earth's field and drift", ds.Window, cyc, ds.Freq, ds.MinCycles))
+	}
+
+	tpl, err := newTemplate(N, dt, ds.Freq, ds.Harmonics, ds.Drift)
+	if err != nil {
+		return nil, err
+	}
+	d := demodulator{c: c, set: &ds, tpl: tpl, res: res}
+	for _, r := range runs {
+		first := len(res.Windows)
+		end := r.lo
+		for lo := r.lo; lo+N <= r.hi; lo += hop {
+			if err := d.window(lo, lo+N); err != nil {
+				return nil, err
+			}
+			end = lo + N
+		}
+		res.Dropped += r.hi - end
+		if !ds.EstimateFreq {
+			d.phaseDrift(res.Windows[first:])
+		}
+	}
+	if !ds.EstimateFreq && len(d.drifts) > 0 {
+		sort.Float64s(d.drifts)
+		res.DriftHz = d.drifts[len(d.drifts)/2]
+		if math.Abs(res.DriftHz) > ds.Band {
+			res.Warnings = append(res.Warnings, fmt.Sprintf(
+				"the phase advances between windows as if the frequency were %.3f Hz, not %g Hz (outside the %.3f Hz band of a %g s window): amplitudes are biased low; estimate the frequency",
+				ds.Freq+res.DriftHz, ds.Freq, ds.Band, ds.Window))
+		}
+	}
+	if len(res.Windows) == 0 {
+		return nil, fmt.Errorf("calibrate: demodulate: no run of the log is as long as one %g s window (%d samples)", ds.Window, N)
+	}
+	return res, nil
+}
+
+// template is the basis shared by all uniformly sampled windows of N
+// samples: columns relative to the first sample, and (XᵀX)⁻¹.
+type template struct {
+	n, p      int
+	dt        float64
+	basis     [][]float64 // p columns of n
+	ginv      []float64   // p×p row-major (XᵀX)⁻¹
+	harmonics []int
+	drift     bool
+	freq      float64
+}
+
+func newTemplate(n int, dt, freq float64, harmonics []int, drift bool) (*template, error) {
+	p := 3 + 2*len(harmonics)
+	if drift {
+		p++
+	}
+	tp := &template{n: n, p: p, dt: dt, harmonics: harmonics, drift: drift, freq: freq}
+	tp.basis = make([][]float64, p)
+	for j := range tp.basis {
+		tp.basis[j] = make([]float64, n)
+	}
+	row := make([]float64, p)
+	w := 2 * math.Pi * freq
+	for k := 0; k < n; k++ {
+		basisRow(row, float64(k)*dt, w, harmonics, drift)
+		for j := 0; j < p; j++ {
+			tp.basis[j][k] = row[j]
+		}
+	}
+	g, err := normalInverse(tp.basis)
+	if err != nil {
+		return nil, err
+	}
+	tp.ginv = g
+	return tp, nil
+}
+
+// normalInverse returns (XᵀX)⁻¹ for the columns of X, row-major.
+func normalInverse(cols [][]float64) ([]float64, error) {
+	p := len(cols)
+	xtx := mat.NewSymDense(p, nil)
+	for i := 0; i < p; i++ {
+		for j := i; j < p; j++ {
+			var s float64
+			for k, v := range cols[i] {
+				s += v * cols[j][k]
+			}
+			xtx.SetSym(i, j, s)
+		}
+	}
+	var ch mat.Cholesky
+	if !ch.Factorize(xtx) {
+		return nil, errors.New("calibrate: demodulate: the sine basis is singular in a window (too few samples per cycle?)")
+	}
+	var inv mat.SymDense
+	if err := ch.InverseTo(&inv); err != nil {
+		return nil, fmt.Errorf("calibrate: demodulate: %v", err)
+	}
+	g := make([]float64, p*p)
+	for i := 0; i < p; i++ {
+		for j := 0; j < p; j++ {
+			g[i*p+j] = inv.At(i, j)
+		}
+	}
+	return g, nil
+}
+
+type demodulator struct {
+	c      *Columns
+	set    *DemodSettings
+	tpl    *template
+	res    *DemodResult
+	drifts []float64
+	// scratch
+	xty  []float64
+	beta []float64
+	ts   []float64
+	ys   []float64
+}
+
+// uniform reports whether rows [lo, hi) sit on the template's time grid
+// within 0.1% of a sample interval.
+func (d *demodulator) uniform(lo, hi int) bool {
+	t := d.c.Time[lo:hi]
+	t0, dt := t[0], d.tpl.dt
+	tol := 1e-3 * dt
+	for k, tk := range t {
+		if math.Abs(tk-t0-float64(k)*dt) > tol {
+			return false
+		}
+	}
+	return true
+}
+
+// window demodulates rows [lo, hi) and appends the result.
+func (d *demodulator) window(lo, hi int) error {
+	c, set := d.c, d.set
+	w := Window{N: hi - lo, Freq: set.Freq}
+	t0 := c.Time[lo]
+	w.Time = 0.5 * (c.Time[lo] + c.Time[hi-1])
+	if c.Group != nil {
+		w.Group = c.Group[lo]
+	}
+	for k := 0; k < 3; k++ {
+		if c.Pos[k] == nil {
+			continue
+		}
+		var s float64
+		for _, v := range c.Pos[k][lo:hi] {
+			s += v
+		}
+		w.Pos[k] = s / float64(hi-lo)
+	}
+	tpl := d.tpl
+	if set.EstimateFreq {
+		f, err := d.estimateWindowFreq(lo, hi)
+		if err != nil {
+			return fmt.Errorf("calibrate: demodulate: window at rows %d-%d (t = %.6f s): %w", lo, hi-1, t0, err)
+		}
+		w.Freq = f
+		if math.Abs(f-set.Freq) > set.Band {
+			d.res.Warnings = append(d.res.Warnings, fmt.Sprintf("window at rows %d-%d (t = %.3f s): frequency %.3f Hz is outside %g ± %.3f Hz", lo, hi-1, w.Time, f, set.Freq, set.Band))
+		}
+		var err2 error
+		tpl, err2 = d.generalTemplate(lo, hi, f)
+		if err2 != nil {
+			return fmt.Errorf("calibrate: demodulate: window at rows %d-%d: %w", lo, hi-1, err2)
+		}
+		d.res.General++
+	} else if d.uniform(lo, hi) {
+		d.res.Uniform++
+	} else {
+		var err error
+		tpl, err = d.generalTemplate(lo, hi, set.Freq)
+		if err != nil {
+			return fmt.Errorf("calibrate: demodulate: window at rows %d-%d (t = %.6f s): %w", lo, hi-1, t0, err)
+		}
+		d.res.General++
+	}
+	var harm [][3]complex128
+	if len(set.Harmonics) > 0 {
+		harm = make([][3]complex128, len(set.Harmonics))
+	}
+	p := tpl.p
+	if cap(d.xty) < p {
+		d.xty = make([]float64, p)
+		d.beta = make([]float64, p)
+	}
+	xty, beta := d.xty[:p], d.beta[:p]
+	dof := float64(hi - lo - p)
+	for k := 0; k < 3; k++ {
+		y := c.B[k][lo:hi]
+		ref := y[0]
+		var yy float64
+		if p == 3 {
+			// The common case, in one pass: Σ y'c, Σ y's, Σ y', Σ y'².
+			cb, sb := tpl.basis[0][:len(y)], tpl.basis[1][:len(y)]
+			var sc, ss, s1 float64
+			for i, v := range y {
+				v -= ref
+				sc += v * cb[i]
+				ss += v * sb[i]
+				s1 += v
+				yy += v * v
+			}
+			xty[0], xty[1], xty[2] = sc, ss, s1
+		} else {
+			for j := range xty {
+				xty[j] = 0
+			}
+			for i, v := range y {
+				v -= ref
+				yy += v * v
+				for j := 0; j < p; j++ {
+					xty[j] += v * tpl.basis[j][i]
+				}
+			}
+		}
+		var fitted float64
+		for i := 0; i < p; i++ {
+			var s float64
+			for j := 0; j < p; j++ {
+				s += tpl.ginv[i*p+j] * xty[j]
+			}
+			beta[i] = s
+			fitted += s * xty[i]
+		}
+		rss := math.Max(yy-fitted, 0)
+		s2 := rss / dof
+		a, b := beta[0], beta[1]
+		w.B[k] = localToAbsolute(a, b, w.Freq, t0, 1)
+		amp := math.Hypot(a, b)
+		g00, g01, g11 := tpl.ginv[0], tpl.ginv[1], tpl.ginv[p+1]
+		var v float64
+		if amp > 0 {
+			ua, ub := a/amp, b/amp
+			v = s2 * (ua*ua*g00 + 2*ua*ub*g01 + ub*ub*g11)
+		} else {
+			v = s2 * (g00 + g11) / 2
+		}
+		w.Sigma[k] = math.Sqrt(v / 2) // RMS scale
+		for j, h := range set.Harmonics {
+			harm[j][k] = localToAbsolute(beta[3+2*j], beta[4+2*j], w.Freq, t0, h)
+		}
+	}
+	d.res.Windows = append(d.res.Windows, w)
+	if harm != nil {
+		d.res.Harmonics = append(d.res.Harmonics, harm)
+	}
+	return nil
+}
+
+// generalTemplate builds the basis from the window's own timestamps.
+func (d *demodulator) generalTemplate(lo, hi int, freq float64) (*template, error) {
+	t := d.c.Time[lo:hi]
+	p := 3 + 2*len(d.set.Harmonics)
+	if d.set.Drift {
+		p++
+	}
+	tp := &template{n: hi - lo, p: p, freq: freq}
+	tp.basis = make([][]float64, p)
+	for j := range tp.basis {
+		tp.basis[j] = make([]float64, hi-lo)
+	}
+	row := make([]float64, p)
+	w := 2 * math.Pi * freq
+	for k, tk := range t {
+		basisRow(row, tk-t[0], w, d.set.Harmonics, d.set.Drift)
+		for j := 0; j < p; j++ {
+			tp.basis[j][k] = row[j]
+		}
+	}
+	g, err := normalInverse(tp.basis)
+	if err != nil {
+		return nil, err
+	}
+	tp.ginv = g
+	return tp, nil
+}
+
+// estimateWindowFreq runs the four-parameter fit on the axis with the
+// largest amplitude at the nominal frequency.
+func (d *demodulator) estimateWindowFreq(lo, hi int) (float64, error) {
+	t := d.c.Time[lo:hi]
+	best, bestAmp := 0, -1.0
+	ss := &SineSettings{Harmonics: d.set.Harmonics, Drift: d.set.Drift}
+	for k := 0; k < 3; k++ {
+		f, err := FitSine(t, d.c.B[k][lo:hi], d.set.Freq, ss)
+		if err != nil {
+			return 0, err
+		}
+		if a := f.Amplitude(); a > bestAmp {
+			best, bestAmp = k, a
+		}
+	}
+	f, err := FitSine4(t, d.c.B[best][lo:hi], d.set.Freq, ss)
+	if err != nil {
+		return 0, err
+	}
+	return f.Freq, nil
+}
+
+// phaseDrift records the apparent frequency error from the phase advance
+// between consecutive windows of one run, on the strongest axis.
+func (d *demodulator) phaseDrift(ws []Window) {
+	if len(ws) < 2 {
+		return
+	}
+	axis, best := 0, -1.0
+	for k := 0; k < 3; k++ {
+		if a := cmplx.Abs(ws[0].B[k]); a > best {
+			axis, best = k, a
+		}
+	}
+	for i := 1; i < len(ws); i++ {
+		a, b := ws[i-1], ws[i]
+		if cmplx.Abs(a.B[axis]) < 5*a.Sigma[axis] || cmplx.Abs(b.B[axis]) < 5*b.Sigma[axis] {
+			continue
+		}
+		dt := b.Time - a.Time
+		if !(dt > 0) {
+			continue
+		}
+		dphi := cmplx.Phase(b.B[axis] / a.B[axis])
+		d.drifts = append(d.drifts, dphi/(2*math.Pi*dt))
+	}
+}
+
+// estimateFreq finds the dominant frequency above minFreq: the peak of the
+// summed power spectrum of the three axes over the first long run (up to
+// 65536 samples), interpolated, then refined by the four-parameter fit.
+func estimateFreq(c *Columns, runs []run, dt, minFreq float64) (float64, error) {
+	var r run
+	for _, x := range runs {
+		if x.hi-x.lo > r.hi-r.lo {
+			r = x
+		}
+	}
+	n := 1
+	for n*2 <= min(r.hi-r.lo, 65536) {
+		n *= 2
+	}
+	if n < 64 {
+		return 0, errors.New("calibrate: demodulate: cannot estimate the frequency: no run of 64 samples or more")
+	}
+	fft := fourier.NewFFT(n)
+	power := make([]float64, n/2+1)
+	seq := make([]float64, n)
+	var coef []complex128
+	for k := 0; k < 3; k++ {
+		y := c.B[k][r.lo : r.lo+n]
+		var m float64
+		for _, v := range y {
+			m += v
+		}
+		m /= float64(n)
+		for i, v := range y {
+			// Hann window against leakage from the Earth's field and drift.
+			seq[i] = (v - m) * (0.5 - 0.5*math.Cos(2*math.Pi*float64(i)/float64(n)))
+		}
+		coef = fft.Coefficients(coef, seq)
+		for i, z := range coef {
+			power[i] += real(z)*real(z) + imag(z)*imag(z)
+		}
+	}
+	df := 1 / (float64(n) * dt)
+	lo := max(1, int(math.Ceil(minFreq/df)))
+	peak := -1
+	for i := lo; i < len(power)-1; i++ {
+		if peak < 0 || power[i] > power[peak] {
+			peak = i
+		}
+	}
+	if peak < 0 || power[peak] == 0 {
+		return 0, fmt.Errorf("calibrate: demodulate: cannot estimate the frequency: no signal above %g Hz", minFreq)
+	}
+	// Parabolic interpolation of the log power.
+	delta := 0.0
+	if peak > 0 && peak < len(power)-1 && power[peak-1] > 0 && power[peak+1] > 0 {
+		a, b, g := math.Log(power[peak-1]), math.Log(power[peak]), math.Log(power[peak+1])
+		if den := a - 2*b + g; den != 0 {
+			delta = 0.5 * (a - g) / den
+		}
+	}
+	f0 := (float64(peak) + delta) * df
+	axis, best := 0, -1.0
+	for k := 0; k < 3; k++ {
+		f, err := FitSine(c.Time[r.lo:r.lo+n], c.B[k][r.lo:r.lo+n], f0, nil)
+		if err == nil && f.Amplitude() > best {
+			axis, best = k, f.Amplitude()
+		}
+	}
+	f, err := FitSine4(c.Time[r.lo:r.lo+n], c.B[axis][r.lo:r.lo+n], f0, nil)
+	if err != nil || math.Abs(f.Freq-f0) > 2*df {
+		return f0, nil
+	}
+	return f.Freq, nil
+}

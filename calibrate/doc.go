@@ -1,0 +1,103 @@
+// Package calibrate turns raw magnetometer readings into fields a physicist
+// would trust, and records what it did. It sits between ingest and inverse:
+// it imports ingest for the Samples type and nothing downstream.
+//
+// Every algorithm works on plain slices ([][3]float64, []float64); thin
+// adapters apply them to *ingest.Samples in place.
+//
+// # Sensor calibration (hard and soft iron)
+//
+// A three-axis sensor turned through many orientations in a steady field F
+// reads points on an ellipsoid rather than a sphere:
+//
+//	r = D b + o,   |b| = F,
+//
+// with o the hard-iron offset and D the combined soft-iron, scale and
+// non-orthogonality distortion. FitEllipsoid fits the general quadric
+//
+//	a x² + b y² + c z² + 2f yz + 2g xz + 2h xy + 2p x + 2q y + 2r z + d = 0
+//
+// by the direct algebraic method of Li and Griffiths (Proc. Geometric
+// Modeling and Processing 2004, 335-340), which imposes 4J - I² = 1 with
+// I = a+b+c and J = ab+bc+ca-f²-g²-h² so that the solution is an ellipsoid,
+// and solves the resulting generalised eigenproblem. Writing the quadric as
+// (r-o)ᵀ A (r-o) = 1 gives the offset o and the correction
+//
+//	W = s A^(1/2),   corrected = W (r - o),
+//
+// where A^(1/2) is the symmetric square root and s scales the result to a
+// reference field (given) or to the radius of the sphere with the fitted
+// ellipsoid's volume (det W = 1). An optional Gauss-Newton refinement then
+// minimises Σ (|W(r-o)| - F)² over o and the six entries of the symmetric
+// W, in the spirit of the maximum-likelihood refinement of Vasconcelos et
+// al. (IEEE Trans. Aerosp. Electron. Syst. 47(2), 2011). Any fit fixes W
+// only up to a rotation; the symmetric choice is the one nearest the
+// identity.
+//
+// A spin log that does not turn the sensor enough cannot fix the ellipsoid.
+// CheckCoverage looks at unit directions of the readings about a rough
+// centre: the eigenvalues of their scatter matrix (each 1/3 for even
+// coverage; near zero when the sensor was turned about one axis only) and
+// the fraction of readings in each of the six caps around ±x, ±y, ±z.
+//
+// The flip method (fluxgate observatory practice) reads the field at 0 and
+// 180 degrees of rotation about one axis: the two perpendicular components
+// change sign and their offsets are (r0 + r180)/2. A zero-field offset is
+// the mean reading inside a magnetic shield.
+//
+// # Base-station (diurnal) correction
+//
+// Common survey practice: the departure of a fixed base station from its
+// reference value (median, first value or given), linearly interpolated to
+// the rover's timestamps, is subtracted from the rover in a common frame.
+// At Boulder in November 2014 the daily range in H was 34-81 nT (DOMAIN.md),
+// as large as the field of 10 A at 40 m, so DC surveys need it.
+//
+// # Tilt
+//
+// Attitude follows the aerospace convention. The body frame is x forward,
+// y right, z down. Roll φ, pitch θ and yaw ψ (degrees; yaw is the heading,
+// clockwise from north) compose intrinsically in the order Z-Y-X:
+//
+//	R_nb = Rz(ψ) Ry(θ) Rx(φ),   v_NED = R_nb v_body,
+//
+// and east-north-up is v_ENU = (v_E, v_N, -v_D).
+// A quaternion (qw, qx, qy, qz) is a Hamilton quaternion, scalar first,
+// describing the same body-to-NED rotation: v_NED = q v_body q*.
+//
+// # Despiking
+//
+// A Hampel filter: a reading is a spike when it departs from the median of
+// its neighbours by more than k times the scaled median absolute deviation
+// 1.4826 MAD (Hampel 1974; the 1.4826 makes the MAD a consistent estimate
+// of a normal standard deviation).
+//
+// # AC demodulation
+//
+// In each window the readings of one axis are fitted by least squares with
+//
+//	y(t) = a cos ωτ + b sin ωτ + c  [+ harmonics] [+ d τ],   τ = t - t0,
+//
+// the three-parameter sine fit of IEEE Std 1057 and IEEE Std 1241 (known
+// frequency, linear in a, b, c). The constant absorbs the Earth's field and
+// the optional linear term slow drift. The complex RMS phasor, referenced
+// to absolute time so that windows are phase-coherent at a steady
+// frequency, is
+//
+//	B = (a - i b)/√2 · exp(-i ω t0),   y(t) = √2 Re(B exp(i ω t)) + ...
+//
+// On a uniformly sampled log every window of N samples shares the same
+// basis relative to its first sample, so the normal matrix XᵀX and its
+// inverse are computed once; a window then costs a few multiply-adds per
+// sample. When the frequency is unknown, the four-parameter fit of the same
+// standards linearises in the frequency and iterates (Gauss-Newton) from a
+// spectral estimate. A 50.1 Hz tone fitted at exactly 50 Hz over 1 s keeps
+// about 0.9835 of its amplitude (DOMAIN.md), which is why mains work should
+// estimate the frequency.
+//
+// # Induction coils
+//
+// Faraday's law V = -N A μ dB/dt gives, for a sinusoid of frequency f,
+// |B| = |V| / (N A μ 2π f) and B = i V / (N A μ ω) as phasors (DOMAIN.md:
+// N = 1000, A = 1 cm², 50 Hz, 1 µT peak gives 3.14159e-5 V peak).
+package calibrate
