@@ -101,17 +101,22 @@ func (c *Columns) check() error {
 	if c.Group != nil && len(c.Group) != n {
 		return fmt.Errorf("calibrate: group column has %d rows, time has %d", len(c.Group), n)
 	}
-	for i := 0; i < n; i++ {
-		if math.IsNaN(c.Time[i]) || math.IsInf(c.Time[i], 0) {
-			return fmt.Errorf("calibrate: row %d: time is %g", i, c.Time[i])
-		}
-		for k := 0; k < 3; k++ {
-			if v := c.B[k][i]; math.IsNaN(v) || math.IsInf(v, 0) {
-				return fmt.Errorf("calibrate: row %d: column %s is %g", i, [3]string{"bx", "by", "bz"}[k], v)
-			}
+	// Non-finite values are caught per window (badValue), where the sums
+	// turn NaN, so that the log is read only once.
+	return nil
+}
+
+var fieldNames = [3]string{"bx", "by", "bz"}
+
+// badValue returns an error naming the first non-finite value of axis k in
+// rows [lo, hi).
+func (c *Columns) badValue(k, lo, hi int) error {
+	for i := lo; i < hi; i++ {
+		if v := c.B[k][i]; math.IsNaN(v) || math.IsInf(v, 0) {
+			return fmt.Errorf("calibrate: row %d: column %s is %g", i, fieldNames[k], v)
 		}
 	}
-	return nil
+	return fmt.Errorf("calibrate: rows %d-%d: column %s overflows", lo, hi-1, fieldNames[k])
 }
 
 // run is a stretch of rows [lo, hi) in one group with increasing times.
@@ -122,7 +127,8 @@ func (c *Columns) runs() []run {
 	var out []run
 	lo := 0
 	for i := 1; i <= len(c.Time); i++ {
-		if i == len(c.Time) || c.Time[i] <= c.Time[i-1] || (c.Group != nil && c.Group[i] != c.Group[i-1]) {
+		// !(a > b) also splits around NaN times, leaving them in runs of one.
+		if i == len(c.Time) || !(c.Time[i] > c.Time[i-1]) || (c.Group != nil && c.Group[i] != c.Group[i-1]) {
 			out = append(out, run{lo, i})
 			lo = i
 		}
@@ -132,20 +138,34 @@ func (c *Columns) runs() []run {
 
 // sampleInterval is the median positive time step within runs.
 func (c *Columns) sampleInterval(runs []run) float64 {
-	var d []float64
+	// The median of up to 4096 steps taken from the starts of runs.
+	d := make([]float64, 0, 4096)
 	for _, r := range runs {
-		for i := r.lo + 1; i < r.hi; i++ {
+		for i := r.lo + 1; i < r.hi && len(d) < cap(d); i++ {
 			d = append(d, c.Time[i]-c.Time[i-1])
-			if len(d) >= 100000 {
-				break
-			}
 		}
 	}
 	if len(d) == 0 {
 		return 0
 	}
 	sort.Float64s(d)
-	return d[len(d)/2]
+	med := d[len(d)/2]
+	// Absolute Unix times are rounded to ~2.4e-7 s, so single steps are
+	// coarse; the mean step of the longest run is exact to far better when
+	// the run is uniform, and is used when it agrees with the median.
+	var long run
+	for _, r := range runs {
+		if r.hi-r.lo > long.hi-long.lo {
+			long = r
+		}
+	}
+	if long.hi-long.lo > 2 {
+		mean := (c.Time[long.hi-1] - c.Time[long.lo]) / float64(long.hi-long.lo-1)
+		if math.Abs(mean-med) < 1e-3*med {
+			return mean
+		}
+	}
+	return med
 }
 
 // DemodulateColumns fits a sine (three-parameter, or four-parameter with
@@ -228,6 +248,7 @@ func DemodulateColumns(c *Columns, set *DemodSettings) (*DemodResult, error) {
 		return nil, err
 	}
 	d := demodulator{c: c, set: &ds, tpl: tpl, res: res}
+	res.Windows = make([]Window, 0, len(c.Time)/hop+len(runs))
 	for _, r := range runs {
 		first := len(res.Windows)
 		end := r.lo
@@ -339,11 +360,12 @@ type demodulator struct {
 }
 
 // uniform reports whether rows [lo, hi) sit on the template's time grid
-// within 0.1% of a sample interval.
+// within 0.1% of a sample interval (or the rounding of the time column).
 func (d *demodulator) uniform(lo, hi int) bool {
 	t := d.c.Time[lo:hi]
 	t0, dt := t[0], d.tpl.dt
-	tol := 1e-3 * dt
+	// 0.1% of a step, or a few roundings of the absolute time.
+	tol := max(1e-3*dt, 4*(math.Nextafter(math.Abs(t0), math.Inf(1))-math.Abs(t0)))
 	for k, tk := range t {
 		if math.Abs(tk-t0-float64(k)*dt) > tol {
 			return false
@@ -435,6 +457,9 @@ func (d *demodulator) window(lo, hi int) error {
 					xty[j] += v * tpl.basis[j][i]
 				}
 			}
+		}
+		if math.IsNaN(yy) || math.IsInf(yy, 0) {
+			return c.badValue(k, lo, hi)
 		}
 		var fitted float64
 		for i := 0; i < p; i++ {
