@@ -1,0 +1,176 @@
+package calibrate
+
+import (
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"undercurrent/ingest"
+)
+
+// sharedData returns ../shared/data/iaga2002 as seen from the repository
+// root (the directory holding go.mod), skipping the test when absent.
+// The files are INTERMAGNET observatory data distributed by the USGS
+// (public domain); see SOURCE.md there.
+func sharedData(t *testing.T, name string) string {
+	t.Helper()
+	dir, err := os.Getwd()
+	if err != nil {
+		t.Fatal(err)
+	}
+	for {
+		if _, err := os.Stat(filepath.Join(dir, "go.mod")); err == nil {
+			break
+		}
+		parent := filepath.Dir(dir)
+		if parent == dir {
+			t.Skip("repository root not found")
+		}
+		dir = parent
+	}
+	p := filepath.Join(dir, "..", "shared", "data", "iaga2002", name)
+	if _, err := os.Stat(p); err != nil {
+		t.Skipf("real IAGA-2002 data absent: %v", err)
+	}
+	return p
+}
+
+func TestBaseCorrectBoulderSelf(t *testing.T) {
+	// Real Boulder (BOU) 1-minute variation data, 1 and 2 November 2014
+	// (INTERMAGNET / USGS). Correcting a day's record with itself must
+	// leave exactly the reference value (zero departure) at every minute,
+	// and the day's range in H must match DOMAIN.md: "34-81 nT daily range
+	// in H, up to 8 nT/min" for Boulder that November week (the published
+	// figures are whole nT, so we compare after rounding).
+	for _, name := range []string{"bou20141101vmin.min", "bou20141102vmin.min"} {
+		t.Run(name, func(t *testing.T) {
+			path := sharedData(t, name)
+			base, err := ingest.ReadSamples(path)
+			if err != nil {
+				t.Fatal(err)
+			}
+			rover, err := ingest.ReadSamples(path)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if base.Len() != 1440 {
+				t.Fatalf("%d rows, want 1440 minutes", base.Len())
+			}
+			rep, err := BaseCorrect(rover, base, nil)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if rep.Outside != 0 || rep.InGap != 0 || len(rep.Warnings) != 0 {
+				t.Errorf("outside %d, in gap %d, warnings %q: want none", rep.Outside, rep.InGap, rep.Warnings)
+			}
+			cols := [3][]float64{rover.Bx, rover.By, rover.Bz}
+			for k := 0; k < 3; k++ {
+				for i, v := range cols[k] {
+					// The subtraction v - (v - ref) rounds at 1e-11 nT on 5e4 nT.
+					if d := v - rep.Reference[k]; math.Abs(d) > 1e-9 {
+						t.Fatalf("row %d axis %d: residual departure %g nT, want 0", i, k, d)
+					}
+				}
+			}
+			if r := math.Round(rep.RangeH); r < 34 || r > 81 {
+				t.Errorf("daily range in H %.2f nT, outside DOMAIN.md's 34-81 nT", rep.RangeH)
+			}
+			// Rate of change of H, minute to minute: up to 8 nT/min.
+			var maxRate float64
+			for i := 1; i < base.Len(); i++ {
+				h0, h1 := math.Hypot(base.Bx[i-1], base.By[i-1]), math.Hypot(base.Bx[i], base.By[i])
+				if dt := base.Time[i] - base.Time[i-1]; dt == 60 {
+					maxRate = math.Max(maxRate, math.Abs(h1-h0))
+				}
+			}
+			if math.Round(maxRate) > 8 {
+				t.Errorf("largest change of H %.2f nT/min, DOMAIN.md says up to 8", maxRate)
+			}
+		})
+	}
+}
+
+func TestBaseCorrectBoulderPartial(t *testing.T) {
+	// A rover spanning the evening of 1 November into 2 November, against a
+	// base of 1 November only: corrected where covered, held and warned
+	// beyond.
+	base, err := ingest.ReadSamples(sharedData(t, "bou20141101vmin.min"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	day2, err := ingest.ReadSamples(sharedData(t, "bou20141102vmin.min"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	rover := &ingest.Samples{Source: "fenwick-lane-night.csv"}
+	for i := 1380; i < 1440; i++ { // 23:00-23:59 on the 1st
+		rover.Time = append(rover.Time, base.Time[i]+30)
+	}
+	for i := 0; i < 60; i++ { // 00:00-00:59 on the 2nd
+		rover.Time = append(rover.Time, day2.Time[i]+30)
+	}
+	rover.Bx = make([]float64, len(rover.Time))
+	rover.By = make([]float64, len(rover.Time))
+	rover.Bz = make([]float64, len(rover.Time))
+	rep, err := BaseCorrect(rover, base, &BaseSettings{RefMode: "first"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if rep.Covered != 59 || rep.Outside != 61 {
+		t.Errorf("covered %d, outside %d; want 59 and 61", rep.Covered, rep.Outside)
+	}
+	if len(rep.Warnings) != 1 || !strings.Contains(rep.Warnings[0], "does not cover") || !strings.Contains(rep.Warnings[0], "2014-11-02T00:59:30Z") {
+		t.Errorf("warnings %q", rep.Warnings)
+	}
+	// Halfway between two minutes the correction is the mean departure.
+	want := -(0.5*(base.Bz[1380]+base.Bz[1381]) - base.Bz[0])
+	if math.Abs(rover.Bz[0]-want) > 1e-9 {
+		t.Errorf("interpolated correction %.6f, want %.6f", rover.Bz[0], want)
+	}
+	// No overlap at all is an error naming both spans.
+	rover2 := &ingest.Samples{Source: "later.csv", Time: day2.Time, Bx: day2.Bx, By: day2.By, Bz: day2.Bz}
+	if _, err := BaseCorrect(rover2, base, nil); err == nil || !strings.Contains(err.Error(), "does not overlap") {
+		t.Errorf("err = %v, want a no-overlap error", err)
+	}
+}
+
+func TestBaseCorrectColumnsSynthetic(t *testing.T) {
+	// A base departure linear in time is interpolated exactly; a missing
+	// base value (NaN, as ingest reads IAGA 99999) is skipped.
+	bt := []float64{0, 10, 20, 30, 40}
+	bb := [3][]float64{
+		{100, 110, 120, 130, 140},
+		{0, 0, math.NaN(), 0, 0},
+		{-5, -5, -5, -5, -5},
+	}
+	rt := []float64{5, 15, 25, 35}
+	rb := [3][]float64{{1, 1, 1, 1}, {2, 2, 2, 2}, {3, 3, 3, 3}}
+	ref := [3]float64{100, 0, -5}
+	rep, err := BaseCorrectColumns("rover", rt, rb, "base", bt, bb, &BaseSettings{Reference: &ref})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i, want := range []float64{1 - 5, 1 - 15, 1 - 25, 1 - 35} {
+		if math.Abs(rb[0][i]-want) > 1e-12 || rb[1][i] != 2 || rb[2][i] != 3 {
+			t.Errorf("row %d: (%g, %g, %g), want (%g, 2, 3)", i, rb[0][i], rb[1][i], rb[2][i], want)
+		}
+	}
+	// The NaN leaves a 20 s gap in by, within the default 5 × 10 s.
+	if rep.InGap != 0 || rep.Covered != 4 {
+		t.Errorf("in gap %d, covered %d", rep.InGap, rep.Covered)
+	}
+	// With MaxGap 15 s the rows at 15 s and 25 s fall in that gap.
+	rb = [3][]float64{{1, 1, 1, 1}, {2, 2, 2, 2}, {3, 3, 3, 3}}
+	rep, err = BaseCorrectColumns("rover", rt, rb, "base", bt, bb, &BaseSettings{Reference: &ref, MaxGap: 15})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if rep.InGap != 2 || len(rep.Warnings) != 1 || !strings.Contains(rep.Warnings[0], "gaps") {
+		t.Errorf("in gap %d, warnings %q; want 2 and a gap warning", rep.InGap, rep.Warnings)
+	}
+	if _, err := BaseCorrectColumns("rover", rt, rb, "base.csv", []float64{0, 10, 10, 30, 40}, bb, nil); err == nil || !strings.Contains(err.Error(), "base.csv: row 2") {
+		t.Errorf("err = %v, want one naming base.csv row 2", err)
+	}
+}
