@@ -1,0 +1,403 @@
+package ingest
+
+import (
+	"context"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"strconv"
+
+	"github.com/apache/arrow-go/v18/arrow"
+	"github.com/apache/arrow-go/v18/arrow/array"
+	"github.com/apache/arrow-go/v18/arrow/ipc"
+	"github.com/apache/arrow-go/v18/parquet/file"
+	"github.com/apache/arrow-go/v18/parquet/pqarrow"
+)
+
+// arrowReader canonicalises batches from an Arrow IPC file or stream or a
+// Parquet file. When the input already holds canonical float64 columns in
+// canonical units, its arrays are passed through without copying; only the
+// time order and NaN checks touch the values.
+type arrowReader struct {
+	name   string
+	pl     *plan
+	cfg    *config
+	src    func() (arrow.RecordBatch, error) // nil, nil at the end; valid until the next call
+	closer func()
+	cur    arrow.RecordBatch
+	err    error
+	batch  int
+	last   float64
+	rb     rawBatch
+	done   bool
+}
+
+func (r *arrowReader) plan() *plan                    { return r.pl }
+func (r *arrowReader) Schema() *arrow.Schema          { return r.pl.schema }
+func (r *arrowReader) RecordBatch() arrow.RecordBatch { return r.cur }
+func (r *arrowReader) Err() error                     { return r.err }
+
+func (r *arrowReader) Release() {
+	if r.cur != nil {
+		r.cur.Release()
+		r.cur = nil
+	}
+	if r.closer != nil {
+		r.closer()
+		r.closer = nil
+	}
+	r.done = true
+}
+
+func newArrowReaderFor(name, format string, sc *arrow.Schema, cfg *config) (*arrowReader, error) {
+	header := make([]string, sc.NumFields())
+	types := make([]arrow.DataType, sc.NumFields())
+	for i, f := range sc.Fields() {
+		header[i], types[i] = f.Name, f.Type
+	}
+	meta := map[string]string{}
+	md := sc.Metadata()
+	for i, k := range md.Keys() {
+		meta[k] = md.Values()[i]
+	}
+	pl, err := newPlan(name, format, header, types, meta, cfg)
+	if err != nil {
+		return nil, err
+	}
+	return &arrowReader{name: name, pl: pl, cfg: cfg, last: math.NaN()}, nil
+}
+
+func newArrowFileReader(name string, f *os.File, cfg *config) (_ Reader, err error) {
+	defer recoverCorrupt(name, "Arrow IPC file", &err)
+	fr, err := ipc.NewFileReader(f, ipc.WithAllocator(cfg.mem))
+	if err != nil {
+		return nil, fileErr(name, err, "not a readable Arrow IPC file (truncated or corrupt?)")
+	}
+	r, err := newArrowReaderFor(name, string(FormatArrowFile), fr.Schema(), cfg)
+	if err != nil {
+		fr.Close()
+		return nil, err
+	}
+	i := 0
+	r.src = func() (arrow.RecordBatch, error) {
+		if i >= fr.NumRecords() {
+			return nil, nil
+		}
+		rec, err := fr.RecordBatch(i)
+		i++
+		return rec, err
+	}
+	r.closer = func() { fr.Close(); f.Close() }
+	return r, nil
+}
+
+func newArrowStreamReader(name string, f *os.File, cfg *config) (_ Reader, err error) {
+	defer recoverCorrupt(name, "Arrow IPC stream", &err)
+	sr, err := ipc.NewReader(f, ipc.WithAllocator(cfg.mem))
+	if err != nil {
+		return nil, fileErr(name, err, "not a readable Arrow IPC stream (truncated or corrupt?)")
+	}
+	r, err := newArrowReaderFor(name, string(FormatArrowStream), sr.Schema(), cfg)
+	if err != nil {
+		sr.Release()
+		return nil, err
+	}
+	r.src = func() (arrow.RecordBatch, error) {
+		if sr.Next() {
+			return sr.RecordBatch(), nil
+		}
+		return nil, sr.Err()
+	}
+	r.closer = func() { sr.Release(); f.Close() }
+	return r, nil
+}
+
+func newParquetReader(name string, f *os.File, cfg *config) (_ Reader, err error) {
+	defer recoverCorrupt(name, "Parquet file", &err)
+	pf, err := file.NewParquetReader(f)
+	if err != nil {
+		return nil, fileErr(name, err, "not a readable Parquet file (truncated or corrupt?)")
+	}
+	fr, err := pqarrow.NewFileReader(pf, pqarrow.ArrowReadProperties{BatchSize: int64(cfg.batchRows)}, cfg.mem)
+	if err != nil {
+		pf.Close()
+		return nil, fileErr(name, err, "cannot read the Parquet schema")
+	}
+	sc, err := fr.Schema()
+	if err != nil {
+		pf.Close()
+		return nil, fileErr(name, err, "cannot read the Parquet schema")
+	}
+	r, err := newArrowReaderFor(name, string(FormatParquet), sc, cfg)
+	if err != nil {
+		pf.Close()
+		return nil, err
+	}
+	rr, err := fr.GetRecordReader(context.Background(), nil, nil)
+	if err != nil {
+		pf.Close()
+		return nil, fileErr(name, err, "cannot read the Parquet file")
+	}
+	r.src = func() (arrow.RecordBatch, error) {
+		if rr.Next() {
+			return rr.RecordBatch(), nil
+		}
+		err := rr.Err()
+		if err == io.EOF {
+			err = nil
+		}
+		return nil, err
+	}
+	r.closer = func() { rr.Release(); pf.Close() }
+	return r, nil
+}
+
+// recoverCorrupt turns a panic inside the Arrow or Parquet libraries on
+// corrupt input into an error.
+func recoverCorrupt(name, what string, err *error) {
+	if p := recover(); p != nil {
+		*err = fileErr(name, nil, "corrupt %s: %v", what, p)
+	}
+}
+
+func (r *arrowReader) Next() bool {
+	if r.cur != nil {
+		r.cur.Release()
+		r.cur = nil
+	}
+	if r.err != nil || r.done {
+		return false
+	}
+	for {
+		rec, err := r.read()
+		if err != nil {
+			r.err = &Error{File: r.name, Batch: r.batch, Row: 0, Msg: "cannot read batch (truncated or corrupt file?)", Err: err}
+			r.Release()
+			return false
+		}
+		if rec == nil {
+			r.Release()
+			return false
+		}
+		out, err := r.convert(rec)
+		r.batch++
+		if err != nil {
+			r.err = err
+			r.Release()
+			return false
+		}
+		if out.NumRows() == 0 {
+			out.Release()
+			continue
+		}
+		r.cur = out
+		return true
+	}
+}
+
+func (r *arrowReader) read() (rec arrow.RecordBatch, err error) {
+	defer func() {
+		if p := recover(); p != nil {
+			rec, err = nil, fmt.Errorf("%v", p)
+		}
+	}()
+	return r.src()
+}
+
+// convert canonicalises one input batch and checks it.
+func (r *arrowReader) convert(rec arrow.RecordBatch) (arrow.RecordBatch, error) {
+	pl := r.pl
+	n := int(rec.NumRows())
+	if r.fastPath(rec) {
+		cols := make([]arrow.Array, len(pl.out))
+		for i, c := range pl.out {
+			cols[i] = rec.Column(pl.src[c])
+		}
+		for i, c := range pl.out {
+			if c == cGroup || r.cfg.allowMissing {
+				continue
+			}
+			for row, v := range cols[i].(*array.Float64).Float64Values() {
+				if v != v {
+					return nil, rowErr(r.name, r.batch, row, pl.header[pl.src[c]], "NaN", "NaN value; missing values are not allowed by default")
+				}
+			}
+		}
+		if err := r.checkTime(cols[0].(*array.Float64).Float64Values(), nil); err != nil {
+			return nil, err
+		}
+		return array.NewRecordBatch(pl.schema, cols, int64(n)), nil
+	}
+	rb := &r.rb
+	rb.reset(pl)
+	rb.n = n
+	for c := 0; c < nCanon; c++ {
+		if pl.src[c] < 0 {
+			continue
+		}
+		arr := rec.Column(pl.src[c])
+		if c == cGroup {
+			rb.group = appendStrings(rb.group, arr)
+			continue
+		}
+		var err error
+		rb.f[c], err = r.floats(rb.f[c][:0], arr, c)
+		if err != nil {
+			return nil, err
+		}
+	}
+	pl.transform(rb)
+	if err := r.checkTime(rb.f[cTime], nil); err != nil {
+		return nil, err
+	}
+	return pl.record(r.cfg.mem, rb), nil
+}
+
+func (r *arrowReader) fastPath(rec arrow.RecordBatch) bool {
+	pl := r.pl
+	if pl.geodetic || pl.inFrame == FrameNED {
+		return false
+	}
+	for _, c := range pl.out {
+		if pl.src[c] < 0 {
+			return false
+		}
+		arr := rec.Column(pl.src[c])
+		if c == cGroup {
+			if _, ok := arr.(*array.String); !ok {
+				return false
+			}
+			continue
+		}
+		if _, ok := arr.(*array.Float64); !ok || arr.NullN() > 0 || pl.scale[c] != 1 {
+			return false
+		}
+	}
+	return true
+}
+
+func (r *arrowReader) checkTime(t []float64, _ []int) error {
+	if !r.cfg.allowBackwards {
+		if i := firstBackwards(t, r.last); i >= 0 {
+			prev := r.last
+			if i > 0 {
+				prev = lastTime(t[:i], r.last)
+			}
+			e := rowErr(r.name, r.batch, i, r.pl.header[r.pl.src[cTime]], formatSeconds(t[i]), "time goes backwards: %s after %s", formatSeconds(t[i]), formatSeconds(prev))
+			return e
+		}
+	}
+	r.last = lastTime(t, r.last)
+	return nil
+}
+
+// convertible reports whether a column of type dt can feed canonical column c.
+func convertible(dt arrow.DataType, c int) bool {
+	switch dt.ID() {
+	case arrow.STRING, arrow.LARGE_STRING:
+		return true
+	case arrow.FLOAT64, arrow.FLOAT32, arrow.INT8, arrow.INT16, arrow.INT32, arrow.INT64,
+		arrow.UINT8, arrow.UINT16, arrow.UINT32, arrow.UINT64:
+		return true
+	case arrow.TIMESTAMP:
+		return c == cTime
+	case arrow.NULL:
+		return c != cTime
+	}
+	return false
+}
+
+// floats converts an Arrow column into canonical float64 values.
+func (r *arrowReader) floats(dst []float64, arr arrow.Array, c int) ([]float64, error) {
+	pl := r.pl
+	col := pl.header[pl.src[c]]
+	scale := pl.scale[c]
+	n := arr.Len()
+	for i := 0; i < n; i++ {
+		var v float64
+		var text string
+		if arr.IsNull(i) {
+			if !r.cfg.allowMissing {
+				return nil, rowErr(r.name, r.batch, i, col, "null", "null value; missing values are not allowed by default")
+			}
+			dst = append(dst, math.NaN())
+			continue
+		}
+		s := scale
+		switch a := arr.(type) {
+		case *array.Float64:
+			v = a.Value(i)
+		case *array.Float32:
+			v = float64(a.Value(i))
+		case *array.Int8:
+			v = float64(a.Value(i))
+		case *array.Int16:
+			v = float64(a.Value(i))
+		case *array.Int32:
+			v = float64(a.Value(i))
+		case *array.Int64:
+			v = float64(a.Value(i))
+		case *array.Uint8:
+			v = float64(a.Value(i))
+		case *array.Uint16:
+			v = float64(a.Value(i))
+		case *array.Uint32:
+			v = float64(a.Value(i))
+		case *array.Uint64:
+			v = float64(a.Value(i))
+		case *array.Timestamp:
+			unit := a.DataType().(*arrow.TimestampType).Unit
+			v, s = float64(a.Value(i))*unit.Multiplier().Seconds(), 1
+		case *array.String:
+			text = a.Value(i)
+		case *array.LargeString:
+			text = a.Value(i)
+		default:
+			return nil, rowErr(r.name, r.batch, i, col, "", "type %s cannot be read as %s", arr.DataType(), canonNames[c])
+		}
+		switch arr.(type) {
+		case *array.String, *array.LargeString:
+			var ok bool
+			b := []byte(text)
+			t := trimField(b)
+			v, ok = parseNumber(t)
+			if !ok && c == cTime {
+				if v, ok = parseTimestamp(t); ok {
+					s = 1
+				}
+			}
+			if !ok && !(isMissingText(t) && r.cfg.allowMissing) {
+				if isMissingText(t) {
+					return nil, rowErr(r.name, r.batch, i, col, text, "missing value %s; missing values are not allowed by default", quoteText(text))
+				}
+				return nil, rowErr(r.name, r.batch, i, col, text, "%s is not a number", quoteText(text))
+			}
+			if !ok {
+				v = math.NaN()
+			}
+		}
+		if v != v && !r.cfg.allowMissing {
+			return nil, rowErr(r.name, r.batch, i, col, "NaN", "NaN value; missing values are not allowed by default")
+		}
+		if math.IsInf(v, 0) {
+			return nil, rowErr(r.name, r.batch, i, col, strconv.FormatFloat(v, 'g', -1, 64), "value is infinite")
+		}
+		if s != 1 {
+			v *= s
+		}
+		dst = append(dst, v)
+	}
+	return dst, nil
+}
+
+func appendStrings(dst []string, arr arrow.Array) []string {
+	for i := 0; i < arr.Len(); i++ {
+		if arr.IsNull(i) {
+			dst = append(dst, "")
+			continue
+		}
+		dst = append(dst, arr.ValueStr(i))
+	}
+	return dst
+}

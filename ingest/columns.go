@@ -1,0 +1,133 @@
+package ingest
+
+import (
+	"github.com/apache/arrow-go/v18/arrow"
+)
+
+// Canonical column names.
+const (
+	ColTime  = "time"
+	ColX     = "x"
+	ColY     = "y"
+	ColZ     = "z"
+	ColBx    = "bx"
+	ColBy    = "by"
+	ColBz    = "bz"
+	ColGroup = "group"
+	ColTemp  = "temp"
+	ColRoll  = "roll"
+	ColPitch = "pitch"
+	ColYaw   = "yaw"
+	ColQw    = "qw"
+	ColQx    = "qx"
+	ColQy    = "qy"
+	ColQz    = "qz"
+	// ColF is the scalar total field in nT (IAGA-2002 F), an addition to
+	// the agreed set; absent from most logs.
+	ColF = "f"
+)
+
+// Names of input-only columns that carry WGS84 positions. They never appear
+// in a canonical batch: they are converted to x, y, z.
+const (
+	colLat    = "lat"
+	colLon    = "lon"
+	colHeight = "height"
+)
+
+// Schema metadata keys written by this package so that a frame, an origin
+// and header fields survive a conversion between formats.
+const (
+	MetaFrame  = "undercurrent.frame"  // "enu" or "sensor"
+	MetaOrigin = "undercurrent.origin" // "lat lon h" (degrees, degrees, metres)
+	MetaPrefix = "undercurrent.meta."  // + key of Samples.Meta
+)
+
+// Internal indices of the canonical and input-only columns, in output order.
+const (
+	cTime = iota
+	cX
+	cY
+	cZ
+	cBx
+	cBy
+	cBz
+	cGroup
+	cTemp
+	cRoll
+	cPitch
+	cYaw
+	cQw
+	cQx
+	cQy
+	cQz
+	cF
+	cLat
+	cLon
+	cHeight
+	nCanon
+	nOut = cLat // columns below cLat can appear in output
+)
+
+var canonNames = [nCanon]string{
+	ColTime, ColX, ColY, ColZ, ColBx, ColBy, ColBz, ColGroup, ColTemp,
+	ColRoll, ColPitch, ColYaw, ColQw, ColQx, ColQy, ColQz, ColF,
+	colLat, colLon, colHeight,
+}
+
+// aliases are other header names recognised without a mapping option
+// (compared case-insensitively after any unit suffix is removed).
+var aliases = map[string]int{
+	"t": cTime, "timestamp": cTime, "datetime": cTime, "utc": cTime, "epoch": cTime,
+	"traverse": cGroup, "sensor": cGroup, "sensor_id": cGroup,
+	"temperature": cTemp,
+	"latitude":    cLat, "lng": cLon, "long": cLon, "longitude": cLon,
+	"alt": cHeight, "altitude": cHeight, "elevation": cHeight, "ellipsoidal_height": cHeight,
+}
+
+func canonIndex(name string) (int, bool) {
+	for i, n := range canonNames {
+		if n == name {
+			return i, true
+		}
+	}
+	return 0, false
+}
+
+// kind of quantity, which decides the units a column accepts.
+type kind int
+
+const (
+	kindTime kind = iota
+	kindLength
+	kindField
+	kindAngle
+	kindTemp
+	kindPlain // quaternion components, group
+	kindDegrees
+)
+
+func kindOf(c int) kind {
+	switch c {
+	case cTime:
+		return kindTime
+	case cX, cY, cZ, cHeight:
+		return kindLength
+	case cBx, cBy, cBz, cF:
+		return kindField
+	case cRoll, cPitch, cYaw:
+		return kindAngle
+	case cTemp:
+		return kindTemp
+	case cLat, cLon:
+		return kindDegrees
+	}
+	return kindPlain
+}
+
+func fieldType(c int) arrow.DataType {
+	if c == cGroup {
+		return arrow.BinaryTypes.String
+	}
+	return arrow.PrimitiveTypes.Float64
+}

@@ -1,0 +1,578 @@
+package ingest
+
+import (
+	"bufio"
+	"bytes"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"strings"
+	"sync"
+
+	"github.com/apache/arrow-go/v18/arrow"
+)
+
+// maxLineBytes bounds one CSV line; longer lines are an error rather than
+// unbounded memory.
+const maxLineBytes = 16 << 20
+
+// csvReader parses CSV in parallel: a splitter goroutine cuts the input
+// into chunks of whole lines, parser goroutines turn chunks into record
+// batches, and Next hands them out in input order. At most 2 x workers + 2
+// chunks are in flight, so memory does not depend on the file's size.
+type csvReader struct {
+	name    string
+	closer  io.Closer
+	br      *bufio.Reader
+	pl      *plan
+	cfg     *config
+	delim   byte
+	ws      bool
+	ncols   int
+	used    []usedCol
+	pending chan chan csvResult
+	jobs    chan csvJob
+	done    chan struct{}
+	wg      sync.WaitGroup
+	stopped bool
+	cur     arrow.RecordBatch
+	err     error
+	last    float64
+}
+
+type usedCol struct {
+	c     int
+	src   int
+	scale float64
+}
+
+type csvJob struct {
+	data  []byte
+	line  int // line number of the first line in data
+	lines int // newlines in data
+	out   chan csvResult
+}
+
+type csvResult struct {
+	rec       arrow.RecordBatch
+	err       error
+	firstTime float64 // first non-NaN time, NaN if none
+	firstLine int
+	lastTime  float64
+}
+
+func (r *csvReader) plan() *plan                    { return r.pl }
+func (r *csvReader) Schema() *arrow.Schema          { return r.pl.schema }
+func (r *csvReader) RecordBatch() arrow.RecordBatch { return r.cur }
+func (r *csvReader) Err() error                     { return r.err }
+
+// newCSVReader reads the header synchronously and starts the pipeline.
+// name is used in messages; closer (may be nil) is closed by Release.
+func newCSVReader(name string, rd io.Reader, cfg *config) (*csvReader, error) {
+	closer, _ := rd.(io.Closer)
+	r := &csvReader{name: name, closer: closer, cfg: cfg, br: bufio.NewReaderSize(rd, 64<<10), last: math.NaN()}
+	meta := map[string]string{}
+	lineNo := 0
+	var headerLine []byte
+	var carry []byte // raw bytes already read that belong to the data
+	for {
+		raw, err := readLine(r.br)
+		if len(raw) == 0 && err != nil {
+			if err == io.EOF {
+				if lineNo == 0 {
+					return nil, fileErr(name, nil, "empty file")
+				}
+				return nil, fileErr(name, nil, "no header line (only blank or comment lines)")
+			}
+			return nil, fileErr(name, err, "read error")
+		}
+		if len(raw) > maxLineBytes {
+			return nil, lineErr(name, lineNo+1, "", "", "line longer than %d bytes", maxLineBytes)
+		}
+		lineNo++
+		ln := bytes.TrimRight(raw, "\r\n")
+		if lineNo == 1 {
+			ln = bytes.TrimPrefix(ln, []byte("\xef\xbb\xbf")) // UTF-8 byte order mark
+		}
+		if len(bytes.TrimSpace(ln)) == 0 {
+			continue
+		}
+		if cfg.comment != "" && bytes.HasPrefix(bytes.TrimSpace(ln), []byte(cfg.comment)) {
+			text := strings.TrimSpace(strings.TrimPrefix(strings.TrimSpace(string(ln)), cfg.comment))
+			if k, v, ok := strings.Cut(text, ":"); ok && strings.HasPrefix(k, "undercurrent.") && !strings.ContainsAny(k, " \t") {
+				meta[k] = strings.TrimSpace(v)
+			}
+			continue
+		}
+		headerLine = ln
+		if cfg.header != nil {
+			carry = append([]byte(nil), raw...)
+			lineNo-- // the line is data, parsed again below
+		}
+		break
+	}
+	r.delim, r.ws = cfg.delim, cfg.whitespace
+	if r.delim == 0 {
+		r.delim, r.ws = guessDelimiter(headerLine)
+	}
+	var header []string
+	if cfg.header != nil {
+		header = cfg.header
+	} else {
+		for _, f := range splitFields(headerLine, r.delim, r.ws, nil) {
+			header = append(header, strings.TrimSpace(string(unquote(f))))
+		}
+	}
+	r.ncols = len(header)
+	pl, err := newPlan(name, string(FormatCSV), header, nil, meta, cfg)
+	if err != nil {
+		if e, ok := err.(*Error); ok && cfg.header == nil {
+			e.Line = lineNo
+		}
+		return nil, err
+	}
+	r.pl = pl
+	for c := 0; c < nCanon; c++ {
+		if pl.src[c] >= 0 {
+			r.used = append(r.used, usedCol{c: c, src: pl.src[c], scale: pl.scale[c]})
+		}
+	}
+	startLine := lineNo + 1
+	if pl.geodetic && pl.origin == nil {
+		// The origin is the first reading: parse ahead to it.
+		var rb rawBatch
+		for {
+			raw, err := readLine(r.br)
+			carry = append(carry, raw...)
+			if len(raw) > 0 {
+				rb.reset(pl)
+				if e := r.parseChunk(raw, 1, &rb); e == nil && rb.n > 0 {
+					o := Geodetic{Lat: rb.f[cLat][0], Lon: rb.f[cLon][0]}
+					if rb.f[cHeight] != nil {
+						o.H = rb.f[cHeight][0]
+					}
+					if finite(o.Lat) && finite(o.Lon) && finite(o.H) {
+						pl.setOrigin(o)
+						break
+					}
+				}
+			}
+			if err != nil {
+				break
+			}
+		}
+		if pl.origin == nil { // no usable first reading; the parse below reports why
+			pl.setOrigin(Geodetic{})
+		}
+	}
+	r.start(carry, startLine)
+	return r, nil
+}
+
+// readLine reads one line including its newline, however long.
+func readLine(br *bufio.Reader) ([]byte, error) {
+	line, err := br.ReadSlice('\n')
+	if err != bufio.ErrBufferFull {
+		return append([]byte(nil), line...), err
+	}
+	buf := append([]byte(nil), line...)
+	for err == bufio.ErrBufferFull && len(buf) <= maxLineBytes {
+		line, err = br.ReadSlice('\n')
+		buf = append(buf, line...)
+	}
+	return buf, err
+}
+
+// guessDelimiter picks the most frequent of , ; tab | in the header line,
+// or runs of blanks when none occurs.
+func guessDelimiter(line []byte) (byte, bool) {
+	best, n := byte(','), 0
+	for _, d := range []byte{',', ';', '\t', '|'} {
+		if k := bytes.Count(line, []byte{d}); k > n {
+			best, n = d, k
+		}
+	}
+	if n == 0 && bytes.ContainsAny(bytes.TrimSpace(line), " \t") {
+		return ' ', true
+	}
+	return best, false
+}
+
+// splitFields appends the fields of one line to dst. Quoted fields may hold
+// the delimiter; a quote inside one is doubled.
+func splitFields(ln []byte, delim byte, ws bool, dst [][]byte) [][]byte {
+	if ws {
+		i := 0
+		for i < len(ln) {
+			for i < len(ln) && (ln[i] == ' ' || ln[i] == '\t') {
+				i++
+			}
+			if i == len(ln) {
+				break
+			}
+			j := i
+			for j < len(ln) && ln[j] != ' ' && ln[j] != '\t' {
+				j++
+			}
+			dst = append(dst, ln[i:j])
+			i = j
+		}
+		return dst
+	}
+	for {
+		if len(ln) > 0 && ln[0] == '"' {
+			j := 1
+			for j < len(ln) {
+				if ln[j] == '"' {
+					if j+1 < len(ln) && ln[j+1] == '"' {
+						j += 2
+						continue
+					}
+					break
+				}
+				j++
+			}
+			end := j + 1
+			if end > len(ln) {
+				end = len(ln)
+			}
+			k := bytes.IndexByte(ln[end:], delim)
+			if k < 0 {
+				return append(dst, ln)
+			}
+			dst = append(dst, ln[:end+k])
+			ln = ln[end+k+1:]
+			continue
+		}
+		i := bytes.IndexByte(ln, delim)
+		if i < 0 {
+			return append(dst, ln)
+		}
+		dst = append(dst, ln[:i])
+		ln = ln[i+1:]
+	}
+}
+
+// unquote trims blanks and removes surrounding quotes (undoubling inner ones).
+func unquote(f []byte) []byte {
+	f = bytes.TrimSpace(f)
+	if len(f) >= 2 && f[0] == '"' && f[len(f)-1] == '"' {
+		f = f[1 : len(f)-1]
+		if bytes.Contains(f, []byte(`""`)) {
+			f = bytes.ReplaceAll(f, []byte(`""`), []byte(`"`))
+		}
+	}
+	return f
+}
+
+func trimField(f []byte) []byte {
+	for len(f) > 0 && (f[0] == ' ' || f[0] == '\t') {
+		f = f[1:]
+	}
+	for len(f) > 0 && (f[len(f)-1] == ' ' || f[len(f)-1] == '\t') {
+		f = f[:len(f)-1]
+	}
+	if len(f) >= 2 && f[0] == '"' {
+		return unquote(f)
+	}
+	return f
+}
+
+// parseChunk parses whole lines into rb; line is the number of the first.
+func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch) error {
+	pl, cfg := r.pl, r.cfg
+	comment := []byte(cfg.comment)
+	var fields [][]byte
+	line--
+	for len(data) > 0 {
+		var ln []byte
+		if i := bytes.IndexByte(data, '\n'); i >= 0 {
+			ln, data = data[:i], data[i+1:]
+		} else {
+			ln, data = data, nil
+		}
+		line++
+		if n := len(ln); n > 0 && ln[n-1] == '\r' {
+			ln = ln[:n-1]
+		}
+		if len(ln) == 0 {
+			continue
+		}
+		if ln[0] == ' ' || ln[0] == '\t' || (len(comment) > 0 && ln[0] == comment[0]) {
+			t := bytes.TrimSpace(ln)
+			if len(t) == 0 || (len(comment) > 0 && bytes.HasPrefix(t, comment)) {
+				continue
+			}
+		}
+		fields = splitFields(ln, r.delim, r.ws, fields[:0])
+		if len(fields) != r.ncols {
+			if !(len(fields) == r.ncols+1 && len(bytes.TrimSpace(fields[r.ncols])) == 0) {
+				what := "short row"
+				if len(fields) > r.ncols {
+					what = "long row"
+				}
+				return lineErr(r.name, line, "", string(ln), "%s: %d fields where the header has %d: %s", what, len(fields), r.ncols, quoteText(string(ln)))
+			}
+		}
+		for _, u := range r.used {
+			t := trimField(fields[u.src])
+			if u.c == cGroup {
+				rb.group = append(rb.group, string(t))
+				continue
+			}
+			v, ok := parseNumber(t)
+			scale := u.scale
+			if !ok && u.c == cTime {
+				if v, ok = parseTimestamp(t); ok {
+					scale = 1
+				}
+			}
+			if !ok || !finite(v) {
+				if isMissingText(t) || v != v {
+					if !cfg.allowMissing {
+						what := "missing value (empty cell)"
+						if len(t) > 0 {
+							what = fmt.Sprintf("missing value %s", quoteText(string(t)))
+						}
+						return lineErr(r.name, line, pl.header[u.src], string(t), "%s; missing values are not allowed by default", what)
+					}
+					v = math.NaN()
+				} else if !ok {
+					what := "is not a number"
+					if u.c == cTime {
+						what = "is not a number or an RFC 3339 time"
+					}
+					return lineErr(r.name, line, pl.header[u.src], string(t), "%s %s", quoteText(string(t)), what)
+				} else {
+					return lineErr(r.name, line, pl.header[u.src], string(t), "%s is out of range", quoteText(string(t)))
+				}
+			}
+			if scale != 1 {
+				v *= scale
+			}
+			rb.f[u.c] = append(rb.f[u.c], v)
+		}
+		rb.line = append(rb.line, line)
+		rb.n++
+	}
+	return nil
+}
+
+func (r *csvReader) start(carry []byte, line int) {
+	w := r.cfg.workers
+	r.pending = make(chan chan csvResult, 2*w+2)
+	r.jobs = make(chan csvJob, w)
+	r.done = make(chan struct{})
+	r.wg.Add(1 + w)
+	go r.split(carry, line)
+	for i := 0; i < w; i++ {
+		go r.work()
+	}
+}
+
+var chunkPool sync.Pool
+
+func getChunk(n int) []byte {
+	if b, ok := chunkPool.Get().(*[]byte); ok && cap(*b) >= n {
+		return (*b)[:n]
+	}
+	return make([]byte, n)
+}
+
+func putChunk(b []byte) { chunkPool.Put(&b) }
+
+// split cuts the input into chunks that end at a newline.
+func (r *csvReader) split(carry []byte, line int) {
+	defer r.wg.Done()
+	defer close(r.pending)
+	defer close(r.jobs)
+	size := r.cfg.chunkBytes
+	if size < 1 {
+		size = 1
+	}
+	send := func(j csvJob) bool {
+		j.out = make(chan csvResult, 1)
+		select {
+		case r.pending <- j.out:
+		case <-r.done:
+			return false
+		}
+		if j.data == nil {
+			return true
+		}
+		select {
+		case r.jobs <- j:
+			return true
+		case <-r.done:
+			return false
+		}
+	}
+	fail := func(err error) {
+		out := make(chan csvResult, 1)
+		out <- csvResult{err: err}
+		select {
+		case r.pending <- out:
+		case <-r.done:
+		}
+	}
+	for {
+		n := size
+		if len(carry) >= n {
+			n = 2 * len(carry)
+		}
+		buf := getChunk(n)
+		k := copy(buf, carry)
+		m, err := io.ReadFull(r.br, buf[k:])
+		data := buf[:k+m]
+		eof := err == io.EOF || err == io.ErrUnexpectedEOF
+		if err != nil && !eof {
+			fail(fileErr(r.name, err, "read error near line %d", line))
+			return
+		}
+		if eof {
+			if len(data) > 0 {
+				send(csvJob{data: data, line: line, lines: bytes.Count(data, []byte{'\n'})})
+			}
+			return
+		}
+		cut := bytes.LastIndexByte(data, '\n')
+		if cut < 0 {
+			if len(data) > maxLineBytes {
+				fail(lineErr(r.name, line, "", "", "line longer than %d bytes", maxLineBytes))
+				return
+			}
+			carry = append(carry[:0], data...)
+			putChunk(buf)
+			continue
+		}
+		carry = append(carry[:0], data[cut+1:]...)
+		lines := bytes.Count(data[:cut+1], []byte{'\n'})
+		if !send(csvJob{data: data[:cut+1], line: line, lines: lines}) {
+			return
+		}
+		line += lines
+	}
+}
+
+func (r *csvReader) work() {
+	defer r.wg.Done()
+	var rb rawBatch
+	for {
+		var j csvJob
+		var ok bool
+		select {
+		case j, ok = <-r.jobs:
+			if !ok {
+				return
+			}
+		case <-r.done:
+			return
+		}
+		j.out <- r.parseJob(j, &rb)
+		putChunk(j.data[:cap(j.data)])
+	}
+}
+
+func (r *csvReader) parseJob(j csvJob, rb *rawBatch) csvResult {
+	pl := r.pl
+	rb.reset(pl)
+	for _, u := range r.used {
+		if cap(rb.f[u.c]) < j.lines+1 {
+			rb.f[u.c] = make([]float64, 0, j.lines+1)
+		}
+	}
+	if err := r.parseChunk(j.data, j.line, rb); err != nil {
+		return csvResult{err: err}
+	}
+	if rb.n == 0 {
+		return csvResult{firstTime: math.NaN(), lastTime: math.NaN()}
+	}
+	pl.transform(rb)
+	t := rb.f[cTime]
+	if !r.cfg.allowBackwards {
+		if i := firstBackwards(t, math.NaN()); i > 0 {
+			return csvResult{err: backwardsErr(r.name, rb.line[i], pl.header[pl.src[cTime]], t[i], lastTime(t[:i], math.NaN()))}
+		}
+	}
+	res := csvResult{rec: pl.record(r.cfg.mem, rb), firstTime: math.NaN(), lastTime: lastTime(t, math.NaN())}
+	for i, v := range t {
+		if v == v {
+			res.firstTime, res.firstLine = v, rb.line[i]
+			break
+		}
+	}
+	return res
+}
+
+func backwardsErr(name string, line int, col string, t, prev float64) *Error {
+	return lineErr(name, line, col, formatSeconds(t), "time goes backwards: %s after %s", formatSeconds(t), formatSeconds(prev))
+}
+
+func (r *csvReader) Next() bool {
+	if r.cur != nil {
+		r.cur.Release()
+		r.cur = nil
+	}
+	if r.err != nil || r.stopped {
+		return false
+	}
+	for {
+		ch, ok := <-r.pending
+		if !ok {
+			return false
+		}
+		res := <-ch
+		if res.err != nil {
+			r.err = res.err
+			r.stop()
+			return false
+		}
+		if res.rec == nil {
+			continue
+		}
+		if !r.cfg.allowBackwards && res.firstTime < r.last {
+			res.rec.Release()
+			r.err = backwardsErr(r.name, res.firstLine, r.pl.header[r.pl.src[cTime]], res.firstTime, r.last)
+			r.stop()
+			return false
+		}
+		if res.lastTime == res.lastTime {
+			r.last = res.lastTime
+		}
+		r.cur = res.rec
+		return true
+	}
+}
+
+// stop ends the goroutines and frees batches parsed ahead.
+func (r *csvReader) stop() {
+	if r.stopped {
+		return
+	}
+	r.stopped = true
+	close(r.done)
+	r.wg.Wait()
+	for ch := range r.pending {
+		select {
+		case res := <-ch:
+			if res.rec != nil {
+				res.rec.Release()
+			}
+		default:
+		}
+	}
+	if r.closer != nil {
+		r.closer.Close()
+	}
+}
+
+func (r *csvReader) Release() {
+	if r.cur != nil {
+		r.cur.Release()
+		r.cur = nil
+	}
+	r.stop()
+}
+
+var errClosed = errors.New("reader released")

@@ -1,0 +1,66 @@
+// Package ingest reads magnetometer logs into one canonical, streaming form.
+//
+// Every later stage (calibrate, inverse, report) reads the same columns:
+//
+//	time        seconds (absolute times as Unix seconds, UTC)
+//	x, y, z     metres, local east, north, up
+//	bx, by, bz  nanotesla, the same east-north-up frame (or the sensor's own
+//	            axes when the schema says frame=sensor)
+//	group       text: a traverse, line or sensor id (optional)
+//	temp        degrees Celsius (optional)
+//	roll, pitch, yaw  degrees (optional attitude)
+//	qw, qx, qy, qz    attitude quaternion (optional)
+//	f           scalar total field, nanotesla (optional; IAGA-2002 F)
+//
+// Sources are CSV (any delimiter, comment lines, column mapping such as
+// bx=Bx_uT, units per column), Apache Arrow IPC (file and stream), Parquet and
+// IAGA-2002. Open detects the format from the first bytes of the file, not
+// from its name. Readers hand out arrow.RecordBatch values through
+// Next/RecordBatch/Err and hold only a few batches in memory at a time.
+//
+// # Conversions
+//
+// Field units: 1 uT = 1e3 nT, 1 mT = 1e6 nT, 1 G = 1e5 nT, 1 T = 1e9 nT
+// (SI; the gauss is 1e-4 T). Input given as north-east-down (the geophysical
+// X, Y, Z convention) is turned into east-north-up by
+//
+//	(e, n, u) = (y, x, -z)
+//
+// WGS84 latitude, longitude and ellipsoidal height become local ENU metres
+// about an origin (given, the first reading, or the mean position) through
+// Earth-centred Earth-fixed coordinates, with a = 6378137 m and
+// 1/f = 298.257223563 (NIMA TR8350.2):
+//
+//	N(phi) = a / sqrt(1 - e^2 sin^2 phi),  e^2 = f (2 - f)
+//	X = (N + h) cos phi cos lam,  Y = (N + h) cos phi sin lam,  Z = (N (1 - e^2) + h) sin phi
+//	e = -sin lam dX + cos lam dY
+//	n = -sin phi cos lam dX - sin phi sin lam dY + cos phi dZ
+//	u =  cos phi cos lam dX + cos phi sin lam dY + sin phi dZ
+//
+// IAGA-2002 (INTERMAGNET technical manual) element sets become ENU nT with
+// X north, Y east, Z down: XYZ gives (Y, X, -Z); HDZ gives
+// (H sin D, H cos D, -Z) with D in minutes of arc; HEZ gives (E, H, -Z) with E
+// the east component in nT. For variation data the horizontal axes of HDZ and
+// HEZ are the observatory's baseline frame (D and E are departures from the
+// baseline declination, recorded in Meta["decbas"] when the header gives it).
+// UVW is left in the instrument's axes and marked FrameSensor.
+//
+// # Missing values
+//
+// In IAGA-2002 files 99999.00 (missing) and 88888.00 (not recorded) become
+// NaN in the record batches and in Samples; Collect counts the rows with a
+// missing field value in Meta["missing_rows"]. In other formats an empty
+// cell, a NaN or an Arrow null in a numeric column is an error unless
+// WithAllowMissing is given, in which case it is NaN.
+//
+// # Errors
+//
+// Every error starts with "ingest:" and names the file and the line (CSV,
+// IAGA-2002) or the batch and row (Arrow, Parquet), the column and the
+// offending text, for example
+//
+//	ingest: log.csv:58: column bz: "1oo.0" is not a number
+//
+// Output files are written through WriteFileAtomic: a temporary file in the
+// same directory renamed into place, so a failed write leaves nothing behind.
+package ingest

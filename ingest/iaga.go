@@ -1,0 +1,267 @@
+package ingest
+
+import (
+	"bufio"
+	"bytes"
+	"io"
+	"math"
+	"strconv"
+	"strings"
+	"time"
+
+	"github.com/apache/arrow-go/v18/arrow"
+)
+
+// IAGA-2002 markers for values that are absent (INTERMAGNET technical
+// manual): 99999.00 missing, 88888.00 not recorded. Both read as NaN.
+const (
+	iagaMissing     = 99999.0
+	iagaNotRecorded = 88888.0
+)
+
+// iagaReader streams an IAGA-2002 file. Header fields go to the schema
+// metadata (and so to Samples.Meta) under lower-case keys with underscores:
+// "format", "source_of_data", "station_name", "iaga_code",
+// "geodetic_latitude", "geodetic_longitude", "elevation", "reported",
+// "sensor_orientation", "digital_sampling", "data_interval_type",
+// "data_type", plus "decbas" from a "# DECBAS" comment and "elements", the
+// element set of the data columns as read ("HDZF").
+type iagaReader struct {
+	name     string
+	closer   io.Closer
+	br       *bufio.Reader
+	pl       *plan
+	cfg      *config
+	elements [4]byte
+	line     int
+	cur      arrow.RecordBatch
+	err      error
+	last     float64
+	rb       rawBatch
+	done     bool
+	pending  []byte // first data line, read while looking for the header
+}
+
+func (r *iagaReader) plan() *plan                    { return r.pl }
+func (r *iagaReader) Schema() *arrow.Schema          { return r.pl.schema }
+func (r *iagaReader) RecordBatch() arrow.RecordBatch { return r.cur }
+func (r *iagaReader) Err() error                     { return r.err }
+
+func (r *iagaReader) Release() {
+	if r.cur != nil {
+		r.cur.Release()
+		r.cur = nil
+	}
+	if r.closer != nil {
+		r.closer.Close()
+		r.closer = nil
+	}
+	r.done = true
+}
+
+func iagaKey(label string) string {
+	return strings.ToLower(strings.Join(strings.Fields(label), "_"))
+}
+
+func newIAGAReader(name string, rd io.Reader, cfg *config) (*iagaReader, error) {
+	closer, _ := rd.(io.Closer)
+	r := &iagaReader{name: name, closer: closer, cfg: cfg, br: bufio.NewReaderSize(rd, 64<<10), last: math.NaN()}
+	meta := map[string]string{}
+	var columns []string
+	for {
+		raw, err := readLine(r.br)
+		if len(raw) == 0 && err != nil {
+			if err == io.EOF {
+				return nil, fileErr(name, nil, "IAGA-2002 header without a DATE TIME DOY column line")
+			}
+			return nil, fileErr(name, err, "read error")
+		}
+		r.line++
+		ln := strings.TrimRight(string(raw), "\r\n")
+		t := strings.TrimSpace(ln)
+		switch {
+		case t == "":
+			continue
+		case strings.HasPrefix(t, "DATE"):
+			columns = strings.Fields(strings.TrimSuffix(t, "|"))
+		case strings.HasPrefix(t, "#"):
+			c := strings.TrimSpace(strings.TrimPrefix(t, "#"))
+			if f := strings.Fields(c); len(f) >= 2 && strings.EqualFold(f[0], "DECBAS") {
+				meta[MetaPrefix+"decbas"] = f[1]
+			}
+			continue
+		default:
+			body := strings.TrimSpace(strings.TrimSuffix(strings.TrimRight(ln, " "), "|"))
+			var label, value string
+			if len(body) > 0 && len(ln) > 24 {
+				label, value = strings.TrimSpace(ln[:min(24, len(ln))]), strings.TrimSpace(strings.TrimSuffix(strings.TrimSpace(ln[24:]), "|"))
+			}
+			if label == "" || value == "" {
+				return nil, lineErr(name, r.line, "", ln, "not an IAGA-2002 header line: %s", quoteText(ln))
+			}
+			meta[MetaPrefix+iagaKey(label)] = value
+			continue
+		}
+		break
+	}
+	if len(columns) < 7 {
+		return nil, lineErr(name, r.line, "", strings.Join(columns, " "), "IAGA-2002 column line needs DATE TIME DOY and four elements, found %d names", len(columns))
+	}
+	code := meta[MetaPrefix+"iaga_code"]
+	var el [4]string
+	for i := 0; i < 4; i++ {
+		c := strings.ToUpper(columns[3+i])
+		if code != "" && strings.HasPrefix(c, strings.ToUpper(code)) {
+			c = c[len(code):]
+		} else if len(c) > 3 {
+			c = c[3:]
+		}
+		el[i] = c
+	}
+	for i := 0; i < 4; i++ {
+		if len(el[i]) == 1 {
+			r.elements[i] = el[i][0]
+		}
+	}
+	meta[MetaPrefix+"elements"] = strings.Join(el[:], "")
+	// A NUL third element (no vertical data) is read as all missing.
+	third := map[string]byte{"XY": 'Z', "HD": 'Z', "HE": 'Z', "UV": 'W'}
+	set := el[0] + el[1]
+	if z, ok := third[set]; ok && (el[2] == string(z) || el[2] == "NUL") {
+		r.elements[2] = z
+		set += string(z)
+	} else {
+		set += el[2]
+	}
+	frame := FrameENU
+	switch set {
+	case "XYZ", "HDZ", "HEZ":
+	case "UVW":
+		frame = FrameSensor
+	default:
+		return nil, lineErr(name, r.line, "", set, "IAGA-2002 element set %q is not supported (want XYZ, HDZ, HEZ or UVW)", set)
+	}
+	meta[MetaFrame] = frame.String()
+	header := []string{"DATE TIME", columns[3], columns[4], columns[5], columns[6]}
+	c := *cfg
+	c.mapping, c.units, c.frameSet, c.originMode = map[int]string{}, map[int]string{}, false, originFirst
+	c.mapping[cTime], c.mapping[cBx], c.mapping[cBy], c.mapping[cBz] = header[0], header[1], header[2], header[3]
+	hasF := r.elements[3] == 'F' || r.elements[3] == 'G'
+	if hasF && r.elements[3] == 'F' {
+		c.mapping[cF] = header[4]
+	}
+	pl, err := newPlan(name, string(FormatIAGA), header, nil, meta, &c)
+	if err != nil {
+		return nil, err
+	}
+	r.pl = pl
+	return r, nil
+}
+
+// toENU turns one row of IAGA elements into east, north, up nT; for UVW
+// (sensor axes) the values are kept in order.
+func (r *iagaReader) toENU(v [3]float64) (e, n, u float64) {
+	switch string(r.elements[:3]) {
+	case "XYZ":
+		return v[1], v[0], -v[2]
+	case "HDZ":
+		s, c := math.Sincos(v[1] / 60 * math.Pi / 180)
+		return v[0] * s, v[0] * c, -v[2]
+	case "HEZ":
+		return v[1], v[0], -v[2]
+	}
+	return v[0], v[1], v[2]
+}
+
+func (r *iagaReader) Next() bool {
+	if r.cur != nil {
+		r.cur.Release()
+		r.cur = nil
+	}
+	if r.err != nil || r.done {
+		return false
+	}
+	rb := &r.rb
+	rb.reset(r.pl)
+	hasF := r.pl.src[cF] >= 0
+	for rb.n < r.cfg.batchRows {
+		raw, err := readLine(r.br)
+		if len(raw) == 0 && err != nil {
+			if err != io.EOF {
+				r.err = fileErr(r.name, err, "read error near line %d", r.line)
+			}
+			break
+		}
+		r.line++
+		ln := bytes.TrimRight(raw, "\r\n")
+		if len(bytes.TrimSpace(ln)) == 0 {
+			continue
+		}
+		if e := r.parseRow(ln, rb, hasF); e != nil {
+			r.err = e
+			break
+		}
+		if len(raw) > 0 && err != nil {
+			break
+		}
+	}
+	if r.err != nil || rb.n == 0 {
+		r.Release()
+		return false
+	}
+	r.cur = r.pl.record(r.cfg.mem, rb)
+	return true
+}
+
+func (r *iagaReader) parseRow(ln []byte, rb *rawBatch, hasF bool) error {
+	var f [8][]byte
+	k := 0
+	rest := ln
+	for k < len(f) {
+		rest = bytes.TrimLeft(rest, " \t")
+		if len(rest) == 0 {
+			break
+		}
+		i := bytes.IndexAny(rest, " \t")
+		if i < 0 {
+			i = len(rest)
+		}
+		f[k], rest = rest[:i], rest[i:]
+		k++
+	}
+	if k < 7 || len(bytes.TrimSpace(rest)) > 0 {
+		return lineErr(r.name, r.line, "", string(ln), "IAGA-2002 data line needs date, time, day of year and four values: %s", quoteText(string(ln)))
+	}
+	ts := string(f[0]) + "T" + string(f[1]) + "Z"
+	tm, err := time.Parse("2006-01-02T15:04:05.999999999Z", ts)
+	if err != nil {
+		return lineErr(r.name, r.line, "DATE TIME", string(f[0])+" "+string(f[1]), "%s is not an IAGA-2002 date and time", quoteText(string(f[0])+" "+string(f[1])))
+	}
+	t := unixSeconds(tm)
+	var v [4]float64
+	for i := 0; i < 4; i++ {
+		x, err := strconv.ParseFloat(string(f[3+i]), 64)
+		if err != nil || math.IsInf(x, 0) || x != x {
+			return lineErr(r.name, r.line, r.pl.header[1+i], string(f[3+i]), "%s is not a number", quoteText(string(f[3+i])))
+		}
+		if x >= iagaNotRecorded {
+			x = math.NaN()
+		}
+		v[i] = x
+	}
+	if !r.cfg.allowBackwards && t < r.last {
+		return backwardsErr(r.name, r.line, "DATE TIME", t, r.last)
+	}
+	r.last = t
+	e, n, u := r.toENU([3]float64{v[0], v[1], v[2]})
+	rb.f[cTime] = append(rb.f[cTime], t)
+	rb.f[cBx] = append(rb.f[cBx], e)
+	rb.f[cBy] = append(rb.f[cBy], n)
+	rb.f[cBz] = append(rb.f[cBz], u)
+	if hasF {
+		rb.f[cF] = append(rb.f[cF], v[3])
+	}
+	rb.line = append(rb.line, r.line)
+	rb.n++
+	return nil
+}

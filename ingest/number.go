@@ -1,0 +1,158 @@
+package ingest
+
+import (
+	"bytes"
+	"math"
+	"strconv"
+	"time"
+)
+
+// pow10 holds the powers of ten that are exact in float64.
+var pow10 = [...]float64{1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10,
+	1e11, 1e12, 1e13, 1e14, 1e15, 1e16, 1e17, 1e18, 1e19, 1e20, 1e21, 1e22}
+
+// parseNumber parses a decimal number. Plain decimals of up to 15
+// significant digits with a small exponent take an exact fast path: the
+// integer mantissa and the power of ten are both exact in float64, so one
+// multiplication or division rounds correctly (Clinger, PLDI 1990). Anything
+// else goes to strconv.ParseFloat, so the result is always the correctly
+// rounded value and shortest-form output round-trips.
+func parseNumber(b []byte) (float64, bool) {
+	if v, ok := parseFast(b); ok {
+		return v, true
+	}
+	if len(b) == 0 {
+		return 0, false
+	}
+	v, err := strconv.ParseFloat(string(b), 64)
+	if err != nil {
+		if ne, ok := err.(*strconv.NumError); ok && ne.Err == strconv.ErrRange {
+			return v, true // ±Inf or 0 after rounding; caught by the finiteness check
+		}
+		return 0, false
+	}
+	return v, true
+}
+
+func parseFast(b []byte) (float64, bool) {
+	i, n := 0, len(b)
+	if n == 0 {
+		return 0, false
+	}
+	neg := false
+	if b[0] == '-' || b[0] == '+' {
+		neg = b[0] == '-'
+		i++
+	}
+	var mant uint64
+	nd, exp := 0, 0
+	digits, dot := false, false
+	for ; i < n; i++ {
+		c := b[i]
+		if c >= '0' && c <= '9' {
+			digits = true
+			if mant != 0 || c != '0' {
+				nd++
+				if nd > 15 {
+					return 0, false
+				}
+				mant = mant*10 + uint64(c-'0')
+			}
+			if dot {
+				exp--
+			}
+			continue
+		}
+		if c == '.' && !dot {
+			dot = true
+			continue
+		}
+		break
+	}
+	if !digits {
+		return 0, false
+	}
+	if i < n {
+		if b[i] != 'e' && b[i] != 'E' {
+			return 0, false
+		}
+		i++
+		eneg := false
+		if i < n && (b[i] == '-' || b[i] == '+') {
+			eneg = b[i] == '-'
+			i++
+		}
+		if i == n || n-i > 3 {
+			return 0, false
+		}
+		e := 0
+		for ; i < n; i++ {
+			c := b[i]
+			if c < '0' || c > '9' {
+				return 0, false
+			}
+			e = e*10 + int(c-'0')
+		}
+		if eneg {
+			e = -e
+		}
+		exp += e
+	}
+	f := float64(mant)
+	switch {
+	case mant == 0:
+	case exp == 0:
+	case exp > 0 && exp <= 22:
+		f *= pow10[exp]
+	case exp < 0 && exp >= -22:
+		f /= pow10[-exp]
+	default:
+		return 0, false
+	}
+	if neg {
+		f = -f
+	}
+	return f, true
+}
+
+var timeLayouts = []string{
+	time.RFC3339Nano,
+	"2006-01-02T15:04:05.999999999",
+	"2006-01-02 15:04:05.999999999Z07:00",
+	"2006-01-02 15:04:05.999999999",
+	"2006-01-02T15:04Z07:00",
+	"2006-01-02 15:04",
+	"2006-01-02",
+}
+
+// parseTimestamp parses an RFC 3339 timestamp (or the same with a space for
+// the T, or without a zone, taken as UTC) into Unix seconds.
+func parseTimestamp(b []byte) (float64, bool) {
+	if len(b) < 10 || b[4] != '-' {
+		return 0, false
+	}
+	s := string(b)
+	if bytes.HasSuffix(b, []byte(" UTC")) {
+		s = s[:len(s)-4] + "Z"
+	}
+	for _, l := range timeLayouts {
+		if t, err := time.Parse(l, s); err == nil {
+			return unixSeconds(t), true
+		}
+	}
+	return 0, false
+}
+
+func unixSeconds(t time.Time) float64 {
+	return float64(t.Unix()) + float64(t.Nanosecond())/1e9
+}
+
+func isMissingText(b []byte) bool {
+	switch string(b) {
+	case "", "NaN", "nan", "NAN", "NA", "N/A", "null", "NULL":
+		return true
+	}
+	return false
+}
+
+func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }

@@ -1,0 +1,200 @@
+package ingest
+
+import (
+	"bytes"
+	"errors"
+	"io"
+	"os"
+	"path/filepath"
+
+	"github.com/apache/arrow-go/v18/arrow"
+)
+
+// Reader streams canonical record batches: time float64 seconds; x, y, z
+// float64 metres ENU; bx, by, bz float64 nT ENU (or sensor axes when the
+// schema metadata says frame=sensor); group utf8; the others float64.
+type Reader interface {
+	// Schema is the canonical schema, with the frame, the ENU origin and
+	// header fields in its metadata.
+	Schema() *arrow.Schema
+	// Next advances to the next batch; it returns false at the end of the
+	// input or on an error (see Err).
+	Next() bool
+	// RecordBatch is the current batch, valid until the next call to Next
+	// or Release; Retain it to keep it longer.
+	RecordBatch() arrow.RecordBatch
+	// Err is the error that stopped Next, or nil at a clean end.
+	Err() error
+	// Release stops any background work and frees the reader's memory.
+	Release()
+}
+
+// Format is an input or output file format.
+type Format string
+
+// Formats recognised by Open and WriteSamples.
+const (
+	FormatCSV         Format = "csv"
+	FormatArrowFile   Format = "arrow"
+	FormatArrowStream Format = "arrows"
+	FormatParquet     Format = "parquet"
+	FormatIAGA        Format = "iaga2002"
+)
+
+// DetectFormat guesses a format from the first bytes of a file.
+func DetectFormat(head []byte) Format {
+	switch {
+	case bytes.HasPrefix(head, []byte("ARROW1")):
+		return FormatArrowFile
+	case bytes.HasPrefix(head, []byte("PAR1")):
+		return FormatParquet
+	case len(head) >= 8 && bytes.Equal(head[:4], []byte{0xff, 0xff, 0xff, 0xff}):
+		return FormatArrowStream
+	case looksIAGA(head):
+		return FormatIAGA
+	}
+	return FormatCSV
+}
+
+// looksIAGA reports whether text starts like an IAGA-2002 header: a line
+// " Format" naming IAGA-2002, or header lines with the "|" terminator at
+// column 70 followed by a DATE TIME DOY column header.
+func looksIAGA(head []byte) bool {
+	first, _, _ := bytes.Cut(head, []byte("\n"))
+	if bytes.HasPrefix(bytes.TrimSpace(first), []byte("Format")) && bytes.Contains(bytes.ToUpper(first), []byte("IAGA-2002")) {
+		return true
+	}
+	return bytes.Contains(head, []byte("\nDATE       TIME")) && bytes.HasPrefix(first, []byte(" ")) && bytes.HasSuffix(bytes.TrimRight(first, "\r"), []byte("|"))
+}
+
+// FormatFromExt returns the output format chosen by a file name's
+// extension (.csv, .arrow, .arrows, .parquet).
+func FormatFromExt(path string) (Format, error) {
+	switch filepath.Ext(path) {
+	case ".csv", ".txt":
+		return FormatCSV, nil
+	case ".arrow", ".feather", ".ipc":
+		return FormatArrowFile, nil
+	case ".arrows":
+		return FormatArrowStream, nil
+	case ".parquet", ".pq":
+		return FormatParquet, nil
+	}
+	return "", errors.New("ingest: " + path + ": unknown output extension (want .csv, .arrow, .arrows or .parquet)")
+}
+
+// Open opens a log for streaming. The format is detected from the content.
+// The caller must Release the reader.
+func Open(path string, opts ...Option) (Reader, error) {
+	cfg := newConfig(opts)
+	if cfg.err != nil {
+		return nil, cfg.err
+	}
+	if cfg.originMode == originMean {
+		o, err := meanOrigin(path, cfg)
+		if err != nil {
+			return nil, err
+		}
+		if o != nil {
+			cfg.origin, cfg.originMode = *o, originFixed
+		}
+	}
+	return open(path, cfg)
+}
+
+func open(path string, cfg *config) (Reader, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, fileErr(path, nil, "cannot open: %v", unwrapPath(err))
+	}
+	head := make([]byte, 4096)
+	n, err := io.ReadFull(f, head)
+	if err != nil && err != io.ErrUnexpectedEOF && err != io.EOF {
+		f.Close()
+		return nil, fileErr(path, nil, "cannot read: %v", unwrapPath(err))
+	}
+	head = head[:n]
+	if n == 0 {
+		f.Close()
+		return nil, fileErr(path, nil, "empty file")
+	}
+	if _, err := f.Seek(0, io.SeekStart); err != nil {
+		f.Close()
+		return nil, fileErr(path, err, "cannot seek")
+	}
+	var r Reader
+	switch DetectFormat(head) {
+	case FormatArrowFile:
+		r, err = newArrowFileReader(path, f, cfg)
+	case FormatArrowStream:
+		r, err = newArrowStreamReader(path, f, cfg)
+	case FormatParquet:
+		r, err = newParquetReader(path, f, cfg)
+	case FormatIAGA:
+		r, err = newIAGAReader(path, f, cfg)
+	default:
+		r, err = newCSVReader(path, f, cfg)
+	}
+	if err != nil {
+		f.Close()
+		return nil, err
+	}
+	return r, nil
+}
+
+func unwrapPath(err error) error {
+	var pe *os.PathError
+	if errors.As(err, &pe) {
+		return pe.Err
+	}
+	return err
+}
+
+// meanOrigin reads the log once with the first reading as origin and
+// returns the geodetic position of the mean ENU position (nil when the log
+// has no WGS84 positions).
+func meanOrigin(path string, cfg *config) (*Geodetic, error) {
+	c := *cfg
+	c.originMode = originFirst
+	r, err := open(path, &c)
+	if err != nil {
+		return nil, err
+	}
+	defer r.Release()
+	pl := planOf(r)
+	if pl == nil || !pl.geodetic {
+		for r.Next() {
+		}
+		return nil, r.Err()
+	}
+	var sum [3]float64
+	var n float64
+	for r.Next() {
+		rec := r.RecordBatch()
+		for k, name := range []string{ColX, ColY, ColZ} {
+			col := rec.Column(rec.Schema().FieldIndices(name)[0]).(interface{ Float64Values() []float64 })
+			for _, v := range col.Float64Values() {
+				sum[k] += v
+			}
+		}
+		n += float64(rec.NumRows())
+	}
+	if err := r.Err(); err != nil {
+		return nil, err
+	}
+	if n == 0 || pl.origin == nil {
+		return nil, nil
+	}
+	o := pl.origin.FromENU([3]float64{sum[0] / n, sum[1] / n, sum[2] / n})
+	return &o, nil
+}
+
+// planned is implemented by every reader of this package.
+type planned interface{ plan() *plan }
+
+func planOf(r Reader) *plan {
+	if p, ok := r.(planned); ok {
+		return p.plan()
+	}
+	return nil
+}

@@ -1,0 +1,228 @@
+package ingest
+
+import (
+	"fmt"
+	"runtime"
+	"strings"
+
+	"github.com/apache/arrow-go/v18/arrow/memory"
+)
+
+// Frame names the axes of the field (and position) columns.
+type Frame int
+
+const (
+	// FrameENU is local east, north, up (the canonical frame).
+	FrameENU Frame = iota
+	// FrameSensor is the sensor's own axes; the calibrate stage rotates
+	// such readings to ENU with the attitude columns.
+	FrameSensor
+	// FrameNED is north, east, down (the geophysical X, Y, Z). It is an
+	// input frame only: readers convert it to FrameENU.
+	FrameNED
+)
+
+func (f Frame) String() string {
+	switch f {
+	case FrameENU:
+		return "enu"
+	case FrameSensor:
+		return "sensor"
+	case FrameNED:
+		return "ned"
+	}
+	return fmt.Sprintf("Frame(%d)", int(f))
+}
+
+// ParseFrame parses "enu", "ned" or "sensor" (any case).
+func ParseFrame(s string) (Frame, error) {
+	switch strings.ToLower(strings.TrimSpace(s)) {
+	case "enu", "":
+		return FrameENU, nil
+	case "ned":
+		return FrameNED, nil
+	case "sensor":
+		return FrameSensor, nil
+	}
+	return 0, fmt.Errorf("ingest: unknown frame %q (want enu, ned or sensor)", s)
+}
+
+// Option configures Open and ReadSamples.
+type Option func(*config)
+
+type originMode int
+
+const (
+	originFirst originMode = iota
+	originMean
+	originFixed
+)
+
+type config struct {
+	mapping        map[int]string // canonical index -> source column name
+	mappingText    []string       // as given, for messages
+	units          map[int]string
+	delim          byte // 0: detect
+	whitespace     bool // fields separated by runs of blanks
+	comment        string
+	header         []string // names when the file has no header line
+	frame          Frame
+	frameSet       bool
+	origin         Geodetic
+	originMode     originMode
+	allowMissing   bool
+	allowBackwards bool
+	batchRows      int
+	chunkBytes     int
+	workers        int
+	mem            memory.Allocator
+	err            error // first bad option, reported by Open
+}
+
+func newConfig(opts []Option) *config {
+	c := &config{
+		mapping:    map[int]string{},
+		units:      map[int]string{},
+		comment:    "#",
+		batchRows:  64 * 1024,
+		chunkBytes: 1 << 20,
+		workers:    runtime.GOMAXPROCS(0),
+		mem:        memory.DefaultAllocator,
+	}
+	for _, o := range opts {
+		o(c)
+	}
+	if c.workers < 1 {
+		c.workers = 1
+	}
+	return c
+}
+
+func (c *config) fail(format string, a ...any) {
+	if c.err == nil {
+		c.err = fmt.Errorf("ingest: "+format, a...)
+	}
+}
+
+// WithColumns maps canonical columns to the file's column names, each pair
+// written "canonical=source" ("bx=Bx_uT"). Besides the canonical names the
+// targets lat, lon and height name WGS84 position columns.
+func WithColumns(pairs ...string) Option {
+	return func(c *config) {
+		for _, p := range pairs {
+			for _, q := range strings.Split(p, ",") {
+				q = strings.TrimSpace(q)
+				if q == "" {
+					continue
+				}
+				k, v, ok := strings.Cut(q, "=")
+				k, v = strings.ToLower(strings.TrimSpace(k)), strings.TrimSpace(v)
+				i, known := canonIndex(k)
+				if !ok || v == "" || !known {
+					c.fail("column mapping %q: want canonical=source with canonical one of %s", q, strings.Join(canonNames[:], ", "))
+					continue
+				}
+				c.mapping[i] = v
+				c.mappingText = append(c.mappingText, k+"="+v)
+			}
+		}
+	}
+}
+
+// WithUnits sets the unit of canonical columns, each pair written
+// "column=unit" ("bx=uT", "time=ms"). Field units: nT, uT, mT, G, T, pT;
+// lengths: m, cm, mm, km, ft; angles: deg, rad; time: s, ms, us, ns.
+// Without it a unit suffix in the header ("Bx_uT", "Bx (uT)", "Bx[uT]") is
+// used, else the canonical unit.
+func WithUnits(pairs ...string) Option {
+	return func(c *config) {
+		for _, p := range pairs {
+			for _, q := range strings.Split(p, ",") {
+				q = strings.TrimSpace(q)
+				if q == "" {
+					continue
+				}
+				k, v, ok := strings.Cut(q, "=")
+				k, v = strings.ToLower(strings.TrimSpace(k)), strings.TrimSpace(v)
+				i, known := canonIndex(k)
+				if !ok || !known {
+					c.fail("unit %q: want column=unit with column one of %s", q, strings.Join(canonNames[:], ", "))
+					continue
+				}
+				if _, err := unitScale(kindOf(i), v); err != nil {
+					c.fail("unit %q: %v", q, err)
+					continue
+				}
+				c.units[i] = v
+			}
+		}
+	}
+}
+
+// WithDelimiter sets the CSV field delimiter; ' ' means runs of blanks.
+// Without it the delimiter is guessed from the header line among
+// comma, semicolon, tab, '|' and blanks.
+func WithDelimiter(d rune) Option {
+	return func(c *config) {
+		if d <= 0 || d > 127 || d == '"' || d == '\n' || d == '\r' {
+			c.fail("delimiter %q: want a single ASCII character", d)
+			return
+		}
+		if d == ' ' {
+			c.whitespace = true
+		}
+		c.delim = byte(d)
+	}
+}
+
+// WithComment sets the prefix of CSV comment lines (default "#"); "" turns
+// comment lines off.
+func WithComment(prefix string) Option { return func(c *config) { c.comment = prefix } }
+
+// WithHeader gives the column names of a CSV file that has no header line.
+func WithHeader(names ...string) Option {
+	return func(c *config) { c.header = append([]string(nil), names...) }
+}
+
+// WithFrame says which axes the field and position columns use: FrameENU
+// (default), FrameNED (converted to ENU on reading) or FrameSensor (kept,
+// and marked for the calibrate stage).
+func WithFrame(f Frame) Option { return func(c *config) { c.frame, c.frameSet = f, true } }
+
+// WithOrigin sets the origin of local ENU coordinates for logs whose
+// positions are WGS84 latitude, longitude and height.
+func WithOrigin(o Geodetic) Option {
+	return func(c *config) { c.origin, c.originMode = o, originFixed }
+}
+
+// WithOriginMean puts the ENU origin at the mean position of the log (at
+// the cost of reading the file twice). The default origin is the first
+// reading.
+func WithOriginMean() Option { return func(c *config) { c.originMode = originMean } }
+
+// WithAllowMissing accepts empty cells, NaN and Arrow nulls in numeric
+// columns as missing values (NaN). By default they are errors.
+func WithAllowMissing(ok bool) Option { return func(c *config) { c.allowMissing = ok } }
+
+// WithAllowBackwards accepts time going backwards. By default it is an error.
+func WithAllowBackwards(ok bool) Option { return func(c *config) { c.allowBackwards = ok } }
+
+// WithBatchSize sets the number of rows per record batch for readers that
+// choose it (IAGA-2002, Samples); CSV batches follow its parse chunks.
+func WithBatchSize(rows int) Option {
+	return func(c *config) {
+		if rows > 0 {
+			c.batchRows = rows
+		}
+	}
+}
+
+// WithWorkers sets the number of CSV parser goroutines (default GOMAXPROCS).
+func WithWorkers(n int) Option { return func(c *config) { c.workers = n } }
+
+// WithAllocator sets the Arrow memory allocator for the record batches.
+func WithAllocator(mem memory.Allocator) Option { return func(c *config) { c.mem = mem } }
+
+// withChunkBytes sets the CSV parse chunk size (tests use small chunks to
+// exercise chunk boundaries).
+func withChunkBytes(n int) Option { return func(c *config) { c.chunkBytes = n } }

@@ -1,0 +1,420 @@
+package ingest
+
+import (
+	"fmt"
+	"math"
+	"strconv"
+	"strings"
+
+	"github.com/apache/arrow-go/v18/arrow"
+	"github.com/apache/arrow-go/v18/arrow/array"
+	"github.com/apache/arrow-go/v18/arrow/memory"
+)
+
+// plan is how one input's columns become canonical columns.
+type plan struct {
+	file     string
+	format   string
+	header   []string    // source column names
+	src      [nCanon]int // source column index, -1 when absent
+	unit     [nCanon]string
+	scale    [nCanon]float64
+	auto     [nCanon]bool  // found by name rather than by an explicit mapping
+	geodetic bool          // positions come from lat/lon/height
+	hasPos   bool          // output has x, y, z
+	inFrame  Frame         // frame of the input columns
+	out      []int         // canonical indices of the output columns, in order
+	schema   *arrow.Schema // output schema, with metadata
+	meta     map[string]string
+	origin   *Geodetic
+	enu      enuFrame
+	cfg      *config
+}
+
+// ColumnMapping describes where one canonical column came from.
+type ColumnMapping struct {
+	Column string  `json:"column"` // canonical name
+	Source string  `json:"source"` // the input's column name(s)
+	Unit   string  `json:"unit"`   // unit of the input
+	Scale  float64 `json:"scale"`  // factor to the canonical unit
+}
+
+func (p *plan) mappings() []ColumnMapping {
+	var m []ColumnMapping
+	for _, c := range p.out {
+		cm := ColumnMapping{Column: canonNames[c], Unit: p.unit[c], Scale: p.scale[c]}
+		switch {
+		case p.src[c] >= 0:
+			cm.Source = p.header[p.src[c]]
+		case c >= cX && c <= cZ && p.geodetic:
+			cm.Source = "WGS84 " + p.header[p.src[cLat]] + "/" + p.header[p.src[cLon]]
+			if p.src[cHeight] >= 0 {
+				cm.Source += "/" + p.header[p.src[cHeight]]
+			}
+			cm.Unit, cm.Scale = "m", 1
+		default:
+			cm.Source = "(absent: 0)"
+		}
+		if c >= cX && c <= cZ && p.inFrame == FrameNED && !p.geodetic {
+			cm.Source += " (NED)"
+		}
+		if c >= cBx && c <= cBz && p.inFrame == FrameNED {
+			cm.Source += " (NED)"
+		}
+		m = append(m, cm)
+	}
+	return m
+}
+
+// newPlan resolves the input's column names against the options.
+func newPlan(file, format string, header []string, types []arrow.DataType, meta map[string]string, cfg *config) (*plan, error) {
+	p := &plan{file: file, format: format, header: header, cfg: cfg, meta: map[string]string{}}
+	for i := range p.src {
+		p.src[i] = -1
+	}
+	// Metadata from an earlier conversion.
+	frame := FrameENU
+	for k, v := range meta {
+		switch {
+		case k == MetaFrame:
+			f, err := ParseFrame(v)
+			if err == nil && f != FrameNED {
+				frame = f
+			}
+		case k == MetaOrigin:
+			var g Geodetic
+			if _, err := fmt.Sscanf(v, "%g %g %g", &g.Lat, &g.Lon, &g.H); err == nil {
+				p.origin = &g
+			}
+		case strings.HasPrefix(k, MetaPrefix):
+			p.meta[strings.TrimPrefix(k, MetaPrefix)] = v
+		}
+	}
+	if cfg.frameSet {
+		frame = cfg.frame
+	}
+	p.inFrame = frame
+
+	find := func(name string) int {
+		for i, h := range header {
+			if h == name {
+				return i
+			}
+		}
+		for i, h := range header {
+			if strings.EqualFold(strings.TrimSpace(h), name) {
+				return i
+			}
+		}
+		return -1
+	}
+	for c, name := range cfg.mapping {
+		i := find(name)
+		if i < 0 {
+			return nil, fileErr(file, nil, "mapping %s=%s: no column %q (columns found: %s)", canonNames[c], name, name, strings.Join(header, ", "))
+		}
+		p.src[c] = i
+	}
+	taken := map[int]bool{}
+	for _, i := range p.src {
+		if i >= 0 {
+			taken[i] = true
+		}
+	}
+	unitFromName := [nCanon]string{}
+	for i, h := range header {
+		if taken[i] {
+			continue
+		}
+		base, u := splitUnit(h)
+		c, ok := lookupName(h)
+		if !ok && u != "" {
+			c, ok = lookupName(base)
+			if ok {
+				if _, err := unitScale(kindOf(c), u); err != nil {
+					ok = false // "line_id" is not "line" in unit "id"
+				}
+			}
+		} else {
+			u = ""
+		}
+		if !ok || p.src[c] >= 0 {
+			continue
+		}
+		if _, explicit := cfg.mapping[c]; explicit {
+			continue
+		}
+		p.src[c] = i
+		p.auto[c] = true
+		unitFromName[c] = u
+	}
+	for c := range cfg.mapping {
+		if _, u := splitUnit(header[p.src[c]]); u != "" {
+			if _, err := unitScale(kindOf(c), u); err == nil {
+				unitFromName[c] = u
+			}
+		}
+	}
+
+	// Required columns.
+	var missing []string
+	for _, c := range []int{cTime, cBx, cBy, cBz} {
+		if p.src[c] < 0 {
+			missing = append(missing, canonNames[c])
+		}
+	}
+	if len(missing) > 0 {
+		tried := "none"
+		if len(cfg.mappingText) > 0 {
+			tried = strings.Join(cfg.mappingText, ", ")
+		}
+		return nil, fileErr(file, nil, "no column for %s (columns found: %s; mapping tried: %s; give one with a mapping such as bx=NAME)",
+			strings.Join(missing, ", "), strings.Join(header, ", "), tried)
+	}
+
+	// Units.
+	for c := 0; c < nCanon; c++ {
+		if p.src[c] < 0 {
+			continue
+		}
+		u, ok := cfg.units[c]
+		if !ok {
+			u = unitFromName[c]
+		}
+		if u == "" {
+			u = defaultUnit(kindOf(c))
+		}
+		s, err := unitScale(kindOf(c), u)
+		if err != nil {
+			return nil, &Error{File: file, Batch: -1, Column: canonNames[c], Msg: err.Error()}
+		}
+		p.unit[c], p.scale[c] = u, s
+	}
+	if types != nil {
+		for c := 0; c < nCanon; c++ {
+			if p.src[c] < 0 {
+				continue
+			}
+			if !convertible(types[p.src[c]], c) {
+				return nil, &Error{File: file, Batch: -1, Column: header[p.src[c]],
+					Msg: fmt.Sprintf("type %s cannot be read as %s", types[p.src[c]], canonNames[c])}
+			}
+		}
+	}
+
+	// Positions.
+	anyXYZ := p.src[cX] >= 0 || p.src[cY] >= 0 || p.src[cZ] >= 0
+	hasLL := p.src[cLat] >= 0 && p.src[cLon] >= 0
+	switch {
+	case anyXYZ:
+		p.hasPos = true
+		p.src[cLat], p.src[cLon], p.src[cHeight] = -1, -1, -1
+	case hasLL:
+		p.hasPos, p.geodetic = true, true
+		switch cfg.originMode {
+		case originFixed:
+			o := cfg.origin
+			p.origin = &o
+		default:
+			p.origin = nil // set from the first reading by the reader
+		}
+	case p.src[cLat] >= 0 || p.src[cLon] >= 0:
+		return nil, fileErr(file, nil, "found only one of latitude and longitude (columns found: %s)", strings.Join(header, ", "))
+	}
+	for c := 0; c < nOut; c++ {
+		if p.src[c] >= 0 || (c >= cX && c <= cZ && p.hasPos) {
+			p.out = append(p.out, c)
+		}
+	}
+	if p.origin != nil {
+		p.enu = p.origin.frame()
+	}
+	p.buildSchema()
+	return p, nil
+}
+
+func lookupName(h string) (int, bool) {
+	n := strings.ToLower(strings.TrimSpace(h))
+	if c, ok := canonIndex(n); ok {
+		return c, true
+	}
+	c, ok := aliases[n]
+	return c, ok
+}
+
+func defaultUnit(k kind) string {
+	switch k {
+	case kindTime:
+		return "s"
+	case kindLength:
+		return "m"
+	case kindField:
+		return "nT"
+	case kindAngle, kindDegrees:
+		return "deg"
+	case kindTemp:
+		return "C"
+	}
+	return ""
+}
+
+// setOrigin fixes the ENU origin (when it comes from the data) and
+// rebuilds the schema metadata.
+func (p *plan) setOrigin(o Geodetic) {
+	p.origin = &o
+	p.enu = o.frame()
+	p.buildSchema()
+}
+
+func (p *plan) outFrame() Frame {
+	if p.inFrame == FrameSensor {
+		return FrameSensor
+	}
+	return FrameENU
+}
+
+func (p *plan) buildSchema() {
+	fields := make([]arrow.Field, len(p.out))
+	for i, c := range p.out {
+		fields[i] = arrow.Field{Name: canonNames[c], Type: fieldType(c), Nullable: c == cGroup}
+	}
+	keys := []string{MetaFrame}
+	vals := []string{p.outFrame().String()}
+	if p.origin != nil {
+		keys = append(keys, MetaOrigin)
+		vals = append(vals, formatOrigin(*p.origin))
+	}
+	for _, k := range sortedKeys(p.meta) {
+		keys = append(keys, MetaPrefix+k)
+		vals = append(vals, p.meta[k])
+	}
+	md := arrow.NewMetadata(keys, vals)
+	p.schema = arrow.NewSchema(fields, &md)
+}
+
+func formatOrigin(o Geodetic) string {
+	return strconv.FormatFloat(o.Lat, 'g', -1, 64) + " " + strconv.FormatFloat(o.Lon, 'g', -1, 64) + " " + strconv.FormatFloat(o.H, 'g', -1, 64)
+}
+
+// rawBatch holds parsed values in canonical units, before frame and
+// position conversions.
+type rawBatch struct {
+	n     int
+	f     [nCanon][]float64
+	group []string
+	line  []int // source line of each row (text formats)
+}
+
+func (rb *rawBatch) reset(p *plan) {
+	rb.n = 0
+	for c := range rb.f {
+		rb.f[c] = rb.f[c][:0]
+	}
+	rb.group = rb.group[:0]
+	rb.line = rb.line[:0]
+}
+
+// transform applies the frame and position conversions in place.
+func (p *plan) transform(rb *rawBatch) {
+	n := rb.n
+	for c := cX; c <= cZ; c++ {
+		if p.hasPos && len(rb.f[c]) != n {
+			rb.f[c] = zeros(rb.f[c][:0], n)
+		}
+	}
+	if p.geodetic {
+		h := rb.f[cHeight]
+		for i := 0; i < n; i++ {
+			g := Geodetic{Lat: rb.f[cLat][i], Lon: rb.f[cLon][i]}
+			if h != nil {
+				g.H = h[i]
+			}
+			e := p.enu.toENU(g)
+			rb.f[cX][i], rb.f[cY][i], rb.f[cZ][i] = e[0], e[1], e[2]
+		}
+	}
+	if p.inFrame == FrameNED {
+		if p.hasPos && !p.geodetic {
+			nedToENU(rb.f[cX], rb.f[cY], rb.f[cZ])
+		}
+		nedToENU(rb.f[cBx], rb.f[cBy], rb.f[cBz])
+	}
+}
+
+// nedToENU turns north, east, down columns into east, north, up in place.
+func nedToENU(x, y, z []float64) {
+	for i := range x {
+		x[i], y[i] = y[i], x[i]
+		z[i] = -z[i]
+	}
+}
+
+func zeros(s []float64, n int) []float64 {
+	if cap(s) < n {
+		s = make([]float64, n)
+	}
+	s = s[:n]
+	clear(s)
+	return s
+}
+
+// record builds the output batch from a transformed raw batch.
+func (p *plan) record(mem memory.Allocator, rb *rawBatch) arrow.RecordBatch {
+	cols := make([]arrow.Array, len(p.out))
+	for i, c := range p.out {
+		if c == cGroup {
+			b := array.NewStringBuilder(mem)
+			b.AppendValues(rb.group, nil)
+			cols[i] = b.NewArray()
+			b.Release()
+			continue
+		}
+		cols[i] = float64Array(mem, rb.f[c][:rb.n])
+	}
+	rec := array.NewRecordBatch(p.schema, cols, int64(rb.n))
+	for _, a := range cols {
+		a.Release()
+	}
+	return rec
+}
+
+// float64Array copies v into a new Arrow array owned by mem.
+func float64Array(mem memory.Allocator, v []float64) *array.Float64 {
+	buf := memory.NewResizableBuffer(mem)
+	buf.Resize(len(v) * 8)
+	copy(arrow.Float64Traits.CastFromBytes(buf.Bytes()), v)
+	data := array.NewData(arrow.PrimitiveTypes.Float64, len(v), []*memory.Buffer{nil, buf}, nil, 0, 0)
+	a := array.NewFloat64Data(data)
+	data.Release()
+	buf.Release()
+	return a
+}
+
+// firstBackwards returns the first row i > 0 with t[i] < t[i-1], or -1.
+// prev is the last time of the previous batch (NaN for none). NaN times
+// (allowed missing values) are skipped.
+func firstBackwards(t []float64, prev float64) int {
+	last := prev
+	for i, v := range t {
+		if v < last {
+			return i
+		}
+		if v == v {
+			last = v
+		}
+	}
+	return -1
+}
+
+func lastTime(t []float64, prev float64) float64 {
+	for i := len(t) - 1; i >= 0; i-- {
+		if t[i] == t[i] {
+			return t[i]
+		}
+	}
+	return prev
+}
+
+func formatSeconds(v float64) string { return strconv.FormatFloat(v, 'f', -1, 64) }
+
+var nan = math.NaN()

@@ -1,0 +1,268 @@
+package ingest
+
+import (
+	"fmt"
+	"math"
+	"strconv"
+	"strings"
+
+	"github.com/apache/arrow-go/v18/arrow"
+	"github.com/apache/arrow-go/v18/arrow/array"
+	"github.com/apache/arrow-go/v18/arrow/memory"
+)
+
+// Samples is a whole log in memory as plain columns (what calibrate,
+// inverse and report use). Missing values (IAGA-2002 99999/88888, or cells
+// accepted with WithAllowMissing) are NaN.
+type Samples struct {
+	Source     string            // file name, for messages
+	Time       []float64         // seconds; absolute times as Unix seconds
+	X, Y, Z    []float64         // metres, local east/north/up; nil when the log has no positions (base stations)
+	Bx, By, Bz []float64         // nanotesla, east/north/up (or sensor frame when Frame == FrameSensor)
+	Group      []string          // nil when absent
+	Temp       []float64         // nil when absent
+	Roll       []float64         // degrees, nil when absent
+	Pitch, Yaw []float64         // degrees, nil when absent
+	Qw, Qx     []float64         // attitude quaternion, nil when absent
+	Qy, Qz     []float64         // attitude quaternion, nil when absent
+	F          []float64         // scalar total field, nT (IAGA-2002 F); nil when absent
+	Frame      Frame             // FrameENU (default) or FrameSensor
+	Origin     *Geodetic         // non-nil when positions were converted from WGS84 lat/lon/height
+	Meta       map[string]string // e.g. IAGA-2002 header fields ("station_name", "geodetic_latitude", ...)
+}
+
+// Len returns the number of rows.
+func (s *Samples) Len() int { return len(s.Time) }
+
+// column returns a pointer to the slice of canonical column c.
+func (s *Samples) column(c int) *[]float64 {
+	switch c {
+	case cTime:
+		return &s.Time
+	case cX:
+		return &s.X
+	case cY:
+		return &s.Y
+	case cZ:
+		return &s.Z
+	case cBx:
+		return &s.Bx
+	case cBy:
+		return &s.By
+	case cBz:
+		return &s.Bz
+	case cTemp:
+		return &s.Temp
+	case cRoll:
+		return &s.Roll
+	case cPitch:
+		return &s.Pitch
+	case cYaw:
+		return &s.Yaw
+	case cQw:
+		return &s.Qw
+	case cQx:
+		return &s.Qx
+	case cQy:
+		return &s.Qy
+	case cQz:
+		return &s.Qz
+	case cF:
+		return &s.F
+	}
+	return nil
+}
+
+// ReadSamples reads a whole log into memory (see Open for the options).
+func ReadSamples(path string, opts ...Option) (*Samples, error) {
+	r, err := Open(path, opts...)
+	if err != nil {
+		return nil, err
+	}
+	defer r.Release()
+	s, err := Collect(r)
+	if err != nil {
+		return nil, err
+	}
+	s.Source = path
+	return s, nil
+}
+
+// Collect reads the rest of r into memory. It does not release r. A log
+// with no data rows is an error. Rows with a missing (NaN) field value are
+// counted in Meta["missing_rows"].
+func Collect(r Reader) (*Samples, error) {
+	sc := r.Schema()
+	s := &Samples{Meta: map[string]string{}}
+	if p := planOf(r); p != nil {
+		s.Source = p.file
+	}
+	applySchemaMeta(s, sc)
+	for r.Next() {
+		rec := r.RecordBatch()
+		for i, f := range rec.Schema().Fields() {
+			c, ok := canonIndex(f.Name)
+			if !ok || c >= nOut {
+				continue
+			}
+			col := rec.Column(i)
+			if c == cGroup {
+				for j := 0; j < col.Len(); j++ {
+					s.Group = append(s.Group, col.ValueStr(j))
+				}
+				continue
+			}
+			fa, ok := col.(*array.Float64)
+			if !ok {
+				return nil, fmt.Errorf("ingest: %s: column %s has type %s, want float64", s.Source, f.Name, col.DataType())
+			}
+			p := s.column(c)
+			*p = append(*p, fa.Float64Values()...)
+		}
+	}
+	if err := r.Err(); err != nil {
+		return nil, err
+	}
+	if s.Len() == 0 {
+		return nil, fileErr(s.Source, nil, "no data rows")
+	}
+	missing := 0
+	for i := range s.Time {
+		if math.IsNaN(s.Bx[i]) || math.IsNaN(s.By[i]) || math.IsNaN(s.Bz[i]) {
+			missing++
+		}
+	}
+	if missing > 0 {
+		s.Meta["missing_rows"] = strconv.Itoa(missing)
+	}
+	return s, nil
+}
+
+func applySchemaMeta(s *Samples, sc *arrow.Schema) {
+	md := sc.Metadata()
+	for i, k := range md.Keys() {
+		v := md.Values()[i]
+		switch {
+		case k == MetaFrame:
+			if f, err := ParseFrame(v); err == nil {
+				s.Frame = f
+			}
+		case k == MetaOrigin:
+			var g Geodetic
+			if _, err := fmt.Sscanf(v, "%g %g %g", &g.Lat, &g.Lon, &g.H); err == nil {
+				s.Origin = &g
+			}
+		case strings.HasPrefix(k, MetaPrefix):
+			s.Meta[strings.TrimPrefix(k, MetaPrefix)] = v
+		}
+	}
+}
+
+// schema returns the canonical schema of s, with its metadata.
+func (s *Samples) schema() (*arrow.Schema, []int, error) {
+	n := s.Len()
+	var out []int
+	for c := 0; c < nOut; c++ {
+		if c == cGroup {
+			if s.Group != nil {
+				if len(s.Group) != n {
+					return nil, nil, fmt.Errorf("ingest: %s: column group has %d rows, time has %d", s.Source, len(s.Group), n)
+				}
+				out = append(out, c)
+			}
+			continue
+		}
+		v := *s.column(c)
+		if v == nil {
+			if c == cBx || c == cBy || c == cBz {
+				return nil, nil, fmt.Errorf("ingest: %s: column %s is missing", s.Source, canonNames[c])
+			}
+			continue
+		}
+		if len(v) != n {
+			return nil, nil, fmt.Errorf("ingest: %s: column %s has %d rows, time has %d", s.Source, canonNames[c], len(v), n)
+		}
+		out = append(out, c)
+	}
+	fields := make([]arrow.Field, len(out))
+	for i, c := range out {
+		fields[i] = arrow.Field{Name: canonNames[c], Type: fieldType(c), Nullable: c == cGroup}
+	}
+	frame := FrameENU
+	if s.Frame == FrameSensor {
+		frame = FrameSensor
+	}
+	keys, vals := []string{MetaFrame}, []string{frame.String()}
+	if s.Origin != nil {
+		keys, vals = append(keys, MetaOrigin), append(vals, formatOrigin(*s.Origin))
+	}
+	for _, k := range sortedKeys(s.Meta) {
+		keys, vals = append(keys, MetaPrefix+k), append(vals, s.Meta[k])
+	}
+	md := arrow.NewMetadata(keys, vals)
+	return arrow.NewSchema(fields, &md), out, nil
+}
+
+// samplesReader streams a Samples value as record batches.
+type samplesReader struct {
+	s    *Samples
+	sc   *arrow.Schema
+	out  []int
+	mem  memory.Allocator
+	rows int
+	at   int
+	cur  arrow.RecordBatch
+	err  error
+}
+
+// NewSamplesReader streams s as canonical record batches of up to rows rows
+// (0: 65536), allocated from mem (nil: the default allocator).
+func NewSamplesReader(s *Samples, rows int, mem memory.Allocator) (Reader, error) {
+	sc, out, err := s.schema()
+	if err != nil {
+		return nil, err
+	}
+	if rows <= 0 {
+		rows = 64 * 1024
+	}
+	if mem == nil {
+		mem = memory.DefaultAllocator
+	}
+	return &samplesReader{s: s, sc: sc, out: out, mem: mem, rows: rows}, nil
+}
+
+func (r *samplesReader) Schema() *arrow.Schema          { return r.sc }
+func (r *samplesReader) RecordBatch() arrow.RecordBatch { return r.cur }
+func (r *samplesReader) Err() error                     { return r.err }
+func (r *samplesReader) Release() {
+	if r.cur != nil {
+		r.cur.Release()
+		r.cur = nil
+	}
+}
+
+func (r *samplesReader) Next() bool {
+	r.Release()
+	n := r.s.Len()
+	if r.at >= n {
+		return false
+	}
+	end := min(n, r.at+r.rows)
+	cols := make([]arrow.Array, len(r.out))
+	for i, c := range r.out {
+		if c == cGroup {
+			b := array.NewStringBuilder(r.mem)
+			b.AppendValues(r.s.Group[r.at:end], nil)
+			cols[i] = b.NewArray()
+			b.Release()
+			continue
+		}
+		cols[i] = float64Array(r.mem, (*r.s.column(c))[r.at:end])
+	}
+	r.cur = array.NewRecordBatch(r.sc, cols, int64(end-r.at))
+	for _, a := range cols {
+		a.Release()
+	}
+	r.at = end
+	return true
+}

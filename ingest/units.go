@@ -1,0 +1,100 @@
+package ingest
+
+import (
+	"fmt"
+	"strings"
+)
+
+// unitScale returns the factor that turns a value in unit u into the
+// canonical unit of the quantity kind k.
+func unitScale(k kind, u string) (float64, error) {
+	s := strings.TrimSpace(u)
+	switch k {
+	case kindField:
+		switch s {
+		case "nT", "nt", "NT":
+			return 1, nil
+		case "pT", "pt":
+			return 1e-3, nil
+		case "uT", "µT", "μT", "ut", "UT":
+			return 1e3, nil
+		case "mT", "mt":
+			return 1e6, nil
+		case "T", "t":
+			return 1e9, nil
+		case "G", "g", "gauss", "Gauss":
+			return 1e5, nil
+		case "mG", "mg":
+			return 1e2, nil
+		}
+		return 0, fmt.Errorf("unknown field unit %q (want nT, pT, uT, mT, T, G or mG)", u)
+	case kindLength:
+		switch strings.ToLower(s) {
+		case "m":
+			return 1, nil
+		case "mm":
+			return 1e-3, nil
+		case "cm":
+			return 1e-2, nil
+		case "km":
+			return 1e3, nil
+		case "ft":
+			return 0.3048, nil // international foot, exact
+		}
+		return 0, fmt.Errorf("unknown length unit %q (want m, cm, mm, km or ft)", u)
+	case kindAngle:
+		switch strings.ToLower(s) {
+		case "deg", "degree", "degrees":
+			return 1, nil
+		case "rad", "radian", "radians":
+			return 180 / 3.141592653589793, nil
+		}
+		return 0, fmt.Errorf("unknown angle unit %q (want deg or rad)", u)
+	case kindTime:
+		switch strings.ToLower(s) {
+		case "s", "sec":
+			return 1, nil
+		case "ms":
+			return 1e-3, nil
+		case "us", "µs":
+			return 1e-6, nil
+		case "ns":
+			return 1e-9, nil
+		}
+		return 0, fmt.Errorf("unknown time unit %q (want s, ms, us or ns)", u)
+	case kindTemp:
+		switch s {
+		case "C", "degC", "°C", "c":
+			return 1, nil
+		}
+		return 0, fmt.Errorf("unknown temperature unit %q (want C)", u)
+	case kindDegrees:
+		if strings.ToLower(s) == "deg" {
+			return 1, nil
+		}
+		return 0, fmt.Errorf("latitude and longitude are in degrees, not %q", u)
+	}
+	if s == "" || s == "1" {
+		return 1, nil
+	}
+	return 0, fmt.Errorf("column takes no unit, got %q", u)
+}
+
+// splitUnit splits a header name such as "Bx_uT", "Bx (uT)" or "Bx[uT]"
+// into its base name and unit suffix. unit is "" when there is none.
+func splitUnit(name string) (base, unit string) {
+	n := strings.TrimSpace(name)
+	if strings.HasSuffix(n, ")") || strings.HasSuffix(n, "]") {
+		open := "("
+		if n[len(n)-1] == ']' {
+			open = "["
+		}
+		if i := strings.LastIndex(n, open); i > 0 {
+			return strings.TrimSpace(n[:i]), strings.TrimSpace(n[i+1 : len(n)-1])
+		}
+	}
+	if i := strings.LastIndexAny(n, "_ "); i > 0 {
+		return strings.TrimSpace(n[:i]), n[i+1:]
+	}
+	return n, ""
+}

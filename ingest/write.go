@@ -1,0 +1,221 @@
+package ingest
+
+import (
+	"bufio"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
+
+	"github.com/apache/arrow-go/v18/arrow"
+	"github.com/apache/arrow-go/v18/arrow/array"
+	"github.com/apache/arrow-go/v18/arrow/ipc"
+	"github.com/apache/arrow-go/v18/parquet"
+	"github.com/apache/arrow-go/v18/parquet/compress"
+	"github.com/apache/arrow-go/v18/parquet/pqarrow"
+)
+
+// WriteFileAtomic writes via a temporary file in the same directory and
+// renames it into place; on any error nothing is left at path (an existing
+// file there is kept unchanged). The file gets mode 0644.
+func WriteFileAtomic(path string, write func(w io.Writer) error) (err error) {
+	dir, base := filepath.Split(path)
+	if dir == "" {
+		dir = "."
+	}
+	tmp, err := os.CreateTemp(dir, "."+base+".tmp*")
+	if err != nil {
+		return fmt.Errorf("ingest: %s: %w", path, unwrapPath(err))
+	}
+	defer func() {
+		if err != nil {
+			tmp.Close()
+			os.Remove(tmp.Name())
+		}
+	}()
+	bw := bufio.NewWriterSize(tmp, 1<<20)
+	if err = write(bw); err != nil {
+		return err
+	}
+	if err = bw.Flush(); err != nil {
+		return fmt.Errorf("ingest: %s: %w", path, err)
+	}
+	if err = tmp.Chmod(0o644); err != nil {
+		return fmt.Errorf("ingest: %s: %w", path, err)
+	}
+	if err = tmp.Close(); err != nil {
+		return fmt.Errorf("ingest: %s: %w", path, err)
+	}
+	if err = os.Rename(tmp.Name(), path); err != nil {
+		return fmt.Errorf("ingest: %s: %w", path, unwrapPath(err))
+	}
+	return nil
+}
+
+// WriteSamples writes s to path in the format given by the extension
+// (.csv, .arrow, .arrows, .parquet), atomically. Values round-trip exactly
+// through every format (CSV uses the shortest decimal that reads back to
+// the same float64).
+func WriteSamples(path string, s *Samples) error {
+	r, err := NewSamplesReader(s, 0, nil)
+	if err != nil {
+		return err
+	}
+	defer r.Release()
+	return WriteReader(path, r)
+}
+
+// WriteReader streams the rest of r to path in the format given by the
+// extension (.csv, .arrow, .arrows, .parquet), atomically: if r fails
+// part-way nothing is left at path. It does not release r.
+func WriteReader(path string, r Reader) error {
+	format, err := FormatFromExt(path)
+	if err != nil {
+		return err
+	}
+	return WriteFileAtomic(path, func(w io.Writer) error {
+		var err error
+		switch format {
+		case FormatCSV:
+			err = writeCSV(w, r)
+		case FormatArrowFile:
+			err = writeIPC(w, r, true)
+		case FormatArrowStream:
+			err = writeIPC(w, r, false)
+		case FormatParquet:
+			err = writeParquet(w, r)
+		}
+		if err != nil {
+			if _, ok := err.(*Error); ok || strings.HasPrefix(err.Error(), "ingest:") {
+				return err
+			}
+			return fmt.Errorf("ingest: %s: %w", path, err)
+		}
+		return nil
+	})
+}
+
+func writeIPC(w io.Writer, r Reader, file bool) error {
+	var wr interface {
+		Write(arrow.RecordBatch) error
+		Close() error
+	}
+	if file {
+		fw, err := ipc.NewFileWriter(w, ipc.WithSchema(r.Schema()))
+		if err != nil {
+			return err
+		}
+		wr = fw
+	} else {
+		wr = ipc.NewWriter(w, ipc.WithSchema(r.Schema()))
+	}
+	for r.Next() {
+		if err := wr.Write(r.RecordBatch()); err != nil {
+			wr.Close()
+			return err
+		}
+	}
+	if err := r.Err(); err != nil {
+		wr.Close()
+		return err
+	}
+	return wr.Close()
+}
+
+func writeParquet(w io.Writer, r Reader) error {
+	props := parquet.NewWriterProperties(parquet.WithCompression(compress.Codecs.Snappy), parquet.WithDictionaryDefault(false))
+	fw, err := pqarrow.NewFileWriter(r.Schema(), w, props, pqarrow.NewArrowWriterProperties(pqarrow.WithStoreSchema()))
+	if err != nil {
+		return err
+	}
+	for r.Next() {
+		if err := fw.WriteBuffered(r.RecordBatch()); err != nil {
+			fw.Close()
+			return err
+		}
+	}
+	if err := r.Err(); err != nil {
+		fw.Close()
+		return err
+	}
+	return fw.Close()
+}
+
+// writeCSV writes a header, the schema metadata as "# key: value" comment
+// lines (read back by the CSV reader) and the rows. Floats use the shortest
+// form that parses back to the same value; NaN is written as NaN.
+func writeCSV(w io.Writer, r Reader) error {
+	sc := r.Schema()
+	md := sc.Metadata()
+	var buf []byte
+	for i, k := range md.Keys() {
+		v := strings.ReplaceAll(strings.ReplaceAll(md.Values()[i], "\n", " "), "\r", " ")
+		buf = append(buf, "# "...)
+		buf = append(buf, k...)
+		buf = append(buf, ": "...)
+		buf = append(buf, v...)
+		buf = append(buf, '\n')
+	}
+	for i, f := range sc.Fields() {
+		if i > 0 {
+			buf = append(buf, ',')
+		}
+		buf = append(buf, f.Name...)
+	}
+	buf = append(buf, '\n')
+	if _, err := w.Write(buf); err != nil {
+		return err
+	}
+	for r.Next() {
+		rec := r.RecordBatch()
+		nc := int(rec.NumCols())
+		floats := make([][]float64, nc)
+		strs := make([]*array.String, nc)
+		for j := 0; j < nc; j++ {
+			switch a := rec.Column(j).(type) {
+			case *array.Float64:
+				floats[j] = a.Float64Values()
+			case *array.String:
+				strs[j] = a
+			default:
+				return fmt.Errorf("column %s: cannot write type %s", sc.Field(j).Name, a.DataType())
+			}
+		}
+		n := int(rec.NumRows())
+		for i := 0; i < n; i++ {
+			buf = buf[:0]
+			for j := 0; j < nc; j++ {
+				if j > 0 {
+					buf = append(buf, ',')
+				}
+				if floats[j] != nil {
+					v := floats[j][i]
+					if math.IsNaN(v) {
+						buf = append(buf, "NaN"...)
+					} else {
+						buf = strconv.AppendFloat(buf, v, 'g', -1, 64)
+					}
+					continue
+				}
+				buf = appendCSVString(buf, strs[j].Value(i))
+			}
+			buf = append(buf, '\n')
+			if _, err := w.Write(buf); err != nil {
+				return err
+			}
+		}
+	}
+	return r.Err()
+}
+
+func appendCSVString(buf []byte, s string) []byte {
+	if !strings.ContainsAny(s, ",\"\n\r#") && strings.TrimSpace(s) == s {
+		return append(buf, s...)
+	}
+	buf = append(buf, '"')
+	buf = append(buf, strings.ReplaceAll(s, `"`, `""`)...)
+	return append(buf, '"')
+}
