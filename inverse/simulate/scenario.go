@@ -7,6 +7,8 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"regexp"
+	"strconv"
 	"strings"
 	"time"
 
@@ -188,6 +190,9 @@ const (
 	maxLines = 10_000
 )
 
+// decodeErrRE matches the decoder's type errors.
+var decodeErrRE = regexp.MustCompile(`^toml: line (\d+) \(last key "([^"]*)"\): (.*)$`)
+
 // defaultStart is the time of the first reading when Start is empty.
 var defaultStart = time.Date(2026, 1, 1, 0, 0, 0, 0, time.UTC)
 
@@ -210,6 +215,15 @@ func Parse(data []byte, name string) (*Scenario, error) {
 		var pe toml.ParseError
 		if errors.As(err, &pe) {
 			return nil, fmt.Errorf("simulate: %s:%d:%d: %s", name, pe.Position.Line, pe.Position.Col, pe.Message)
+		}
+		// Type mismatches come as "toml: line N (last key "a.b"): msg".
+		if m := decodeErrRE.FindStringSubmatch(err.Error()); m != nil {
+			line, col := m[1], "1"
+			k := strings.Split(m[2], ".")
+			if l, c := findKey(data, strings.Join(k[:len(k)-1], "."), -1, k[len(k)-1]); l > 0 {
+				line, col = strconv.Itoa(l), strconv.Itoa(c)
+			}
+			return nil, fmt.Errorf("simulate: %s:%s:%s: key %s: %s", name, line, col, m[2], m[3])
 		}
 		return nil, fmt.Errorf("simulate: %s: %w", name, err)
 	}

@@ -46,18 +46,25 @@ func (sc *Scenario) Crossings() []Crossing {
 				out = append(out, crossing(l, ci, c, s, pt, u, c.Current))
 			case "polyline":
 				cur := c.segmentCurrents()
+				const eps = 1e-9
+				var prev *[3]float64
 				for j := 0; j+1 < len(c.Vertices); j++ {
 					a, b := c.Vertices[j], c.Vertices[j+1]
 					s, t, ok := planIntersect(l.From, l.To, [2]float64{a[0], a[1]}, [2]float64{b[0], b[1]})
-					// Half-open in t, so a line through a vertex counts once.
-					if !ok || s < 0 || s > 1 || t < 0 || t >= 1 && j+2 < len(c.Vertices) || t > 1 {
+					if !ok || s < -eps || s > 1+eps || t < -eps || t > 1+eps {
 						continue
 					}
 					d := [3]float64{b[0] - a[0], b[1] - a[1], b[2] - a[2]}
+					pt := [3]float64{a[0] + t*d[0], a[1] + t*d[1], a[2] + t*d[2]}
+					// A line through a vertex meets both segments there:
+					// keep the crossing once, with the current downstream.
+					if prev != nil && norm([3]float64{pt[0] - prev[0], pt[1] - prev[1], pt[2] - prev[2]}) < 1e-6 {
+						out = out[:len(out)-1]
+					}
 					n := norm(d)
 					u := [3]float64{d[0] / n, d[1] / n, d[2] / n}
-					pt := [3]float64{a[0] + t*d[0], a[1] + t*d[1], a[2] + t*d[2]}
 					out = append(out, crossing(l, ci, c, s, pt, u, cur[j]))
+					prev = &pt
 				}
 			}
 		}

@@ -1,0 +1,350 @@
+package inverse
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"sort"
+)
+
+// Multi-start budget: every start first runs a short LM; the best few are then iterated
+// to convergence.
+const (
+	screenIter = 25
+	polishKeep = 2
+)
+
+// candidate is one converged (or screened) K-line fit.
+type candidate struct {
+	sp    *separable
+	x     []float64
+	res   *lmResult
+	rss   float64
+	iters int
+}
+
+// FitLines finds straight line currents (conductors) and a background from field
+// readings: Levenberg-Marquardt on the line geometry with the currents and background
+// eliminated by variable projection, started from seeds read off the field itself, with
+// the number of lines chosen by an information criterion when Settings.Count is 0. AC
+// phasor readings give complex currents with shared geometry. See the package
+// documentation for the maths.
+func FitLines(p *Problem, set *Settings) (*Result, error) {
+	if p == nil {
+		return nil, errors.New("inverse: nil problem")
+	}
+	if err := p.validate(); err != nil {
+		return nil, err
+	}
+	s := set.orDefault()
+	if s.Count < 0 || s.Count > 8 {
+		return nil, fmt.Errorf("inverse: Settings.Count = %d, want 0 (automatic) to 8", s.Count)
+	}
+	if len(p.Points) < 3 {
+		return nil, fmt.Errorf("inverse: %d readings are too few for a line fit", len(p.Points))
+	}
+	sv := newSurvey(p)
+	f := &fitter{sv: sv, set: &s, prob: p}
+	if s.Count > 0 {
+		var prev *candidate
+		var err error
+		for k := 1; k <= s.Count; k++ {
+			prev, err = f.fitK(k, prev)
+			if err != nil {
+				return nil, err
+			}
+		}
+		return f.report(prev, nil)
+	}
+	var scores []ModelScore
+	var best, prev *candidate
+	var bestScore float64
+	for k := 1; k <= s.MaxCount; k++ {
+		c, err := f.fitK(k, prev)
+		if err != nil {
+			if k == 1 {
+				return nil, err
+			}
+			scores = append(scores, ModelScore{Count: k, Rejected: err.Error()})
+			break
+		}
+		prev = c
+		sc := f.score(c)
+		crit := sc.BIC
+		if s.Criterion == AIC {
+			crit = sc.AIC
+		}
+		if k > 1 {
+			if crit >= bestScore {
+				sc.Rejected = "criterion not lower than with fewer lines"
+			} else if why := f.guard(c); why != "" {
+				sc.Rejected = why
+			}
+		}
+		scores = append(scores, sc)
+		if sc.Rejected != "" {
+			break
+		}
+		best, bestScore = c, crit
+	}
+	for i := range scores {
+		if best != nil && scores[i].Count == len(best.sp.geom) {
+			scores[i].Chosen = true
+		}
+	}
+	return f.report(best, scores)
+}
+
+type fitter struct {
+	sv     *survey
+	set    *Settings
+	prob   *Problem
+	starts int
+}
+
+func (f *fitter) holds() (holdAz, holdDip bool, az, dip float64) {
+	sv, s := f.sv, f.set
+	if s.Dip != nil {
+		holdDip, dip = true, *s.Dip*math.Pi/180
+	} else if sv.single {
+		holdDip = true
+	}
+	if s.Azimuth != nil {
+		holdAz, az = true, *s.Azimuth*math.Pi/180
+	} else if sv.single {
+		// Perpendicular to the traverse.
+		holdAz = true
+		az = math.Atan2(sv.t1[0], sv.t1[1]) + math.Pi/2
+	}
+	return
+}
+
+// seedsFromData proposes single-line seeds from the anomaly in data rows d.
+func (f *fitter) seedsFromData(d []float64) []seed {
+	a := anomaly(d, len(f.sv.pts), f.sv.nrhs)
+	holdAz, _, az, _ := f.holds()
+	azs := []float64{az}
+	if !holdAz {
+		azs = f.sv.azimuthCandidates(a)
+	}
+	var out []seed
+	for _, az := range azs {
+		sd := f.sv.seedFor(a, az)
+		h := sd.z
+		zc := f.sv.pts[0][2]
+		_ = zc
+		depth := f.sv.zmean - h
+		for _, m := range []float64{1, 0.6, 1.7} {
+			s2 := sd
+			s2.z = f.sv.zmean - m*depth
+			out = append(out, s2)
+		}
+	}
+	return out
+}
+
+// fitK fits k lines, seeding from the data (k = 1) or from the best (k-1)-line fit prev:
+// a new line at the peak of its residual, or one of its lines split into a close pair
+// (a cable and its return), then keeps the best.
+func (f *fitter) fitK(k int, prev *candidate) (*candidate, error) {
+	holdAz, holdDip, _, dip := f.holds()
+	var starts [][]lineGeom
+	if k == 1 || prev == nil {
+		for _, sd := range f.seedsFromData(f.sv.y) {
+			starts = append(starts, []lineGeom{f.sv.geomFrom(sd, holdAz, holdDip, dip, f.set.MinDepth)})
+		}
+	} else {
+		base := append([]lineGeom(nil), prev.sp.geom...)
+		res, err := prev.sp.fullResiduals(prev.x)
+		if err != nil {
+			return nil, err
+		}
+		for _, sd := range f.seedsFromData(res) {
+			g := append(append([]lineGeom(nil), base...), f.sv.geomFrom(sd, holdAz, holdDip, dip, f.set.MinDepth))
+			starts = append(starts, g)
+		}
+		for i := range base {
+			h := f.sv.zmean - base[i].z
+			for _, d := range []float64{0.3 * h, 0.7 * h} {
+				g := append([]lineGeom(nil), base...)
+				a, b := base[i], base[i]
+				a.s -= d
+				b.s += d
+				g[i] = a
+				g = append(g, b)
+				starts = append(starts, g)
+			}
+		}
+	}
+	var cands []*candidate
+	var firstErr error
+	for _, g := range starts {
+		sp := newSeparable(f.sv.pts, f.sv.y, f.sv.nrhs, f.set.Background, f.sv.centroid, g)
+		lmp, x0 := sp.problem()
+		ls := f.set.lm()
+		ls.maxIter = screenIter
+		f.starts++
+		res, err := levmar(lmp, x0, ls)
+		if err != nil {
+			if firstErr == nil {
+				firstErr = err
+			}
+			continue
+		}
+		cands = append(cands, &candidate{sp: sp, x: res.x, res: res, rss: res.rss, iters: res.iter})
+	}
+	if len(cands) == 0 {
+		if firstErr == nil {
+			firstErr = errors.New("inverse: no starting geometry could be evaluated")
+		}
+		return nil, fmt.Errorf("inverse: fitting %d line(s): %w", k, firstErr)
+	}
+	sort.Slice(cands, func(i, j int) bool { return cands[i].rss < cands[j].rss })
+	var best *candidate
+	for _, c := range cands[:min(polishKeep, len(cands))] {
+		if err := f.polish(c); err != nil {
+			continue
+		}
+		if best == nil || c.rss < best.rss {
+			best = c
+		}
+	}
+	if best == nil {
+		return nil, fmt.Errorf("inverse: fitting %d line(s): no start converged", k)
+	}
+	if f.set.Robust {
+		if err := f.reweight(best); err != nil {
+			return nil, err
+		}
+	}
+	return best, nil
+}
+
+// polish iterates a screened candidate to convergence.
+func (f *fitter) polish(c *candidate) error {
+	lmp, _ := c.sp.problem()
+	res, err := levmar(lmp, c.x, f.set.lm())
+	if err != nil {
+		return err
+	}
+	c.x, c.res, c.rss = res.x, res, res.rss
+	c.iters += res.iter
+	return nil
+}
+
+// reweight runs iteratively reweighted least squares with Huber weights: residuals
+// beyond HuberC robust standard deviations (1.4826 times the median absolute deviation)
+// get weight HuberC*scale/|r| (Huber 1964; Holland & Welsch 1977).
+func (f *fitter) reweight(c *candidate) error {
+	sp := c.sp
+	m, nr := sp.m, sp.nrhs
+	w := make([]float64, m)
+	for iter := 0; iter < 30; iter++ {
+		res, err := sp.fullResiduals(c.x)
+		if err != nil {
+			return err
+		}
+		mag := make([]float64, m)
+		for row := range m {
+			var s float64
+			for k := range nr {
+				s += res[row*nr+k] * res[row*nr+k]
+			}
+			mag[row] = math.Sqrt(s / float64(nr))
+		}
+		scale := 1.4826 * median(mag)
+		if nr == 1 {
+			abs := make([]float64, m)
+			med := median(res)
+			for i, v := range res {
+				abs[i] = math.Abs(v - med)
+			}
+			scale = 1.4826 * median(abs)
+		}
+		if scale == 0 {
+			return nil
+		}
+		change := 0.0
+		for row := range m {
+			nw := 1.0
+			if t := f.set.HuberC * scale; mag[row] > t {
+				nw = t / mag[row]
+			}
+			change = math.Max(change, math.Abs(nw-w[row]))
+			w[row] = nw
+		}
+		if sp.w == nil {
+			sp.w = make([]float64, m)
+		}
+		for row := range m {
+			sp.w[row] = math.Sqrt(w[row])
+		}
+		sp.ok = false
+		lmp, _ := sp.problem()
+		r, err := levmar(lmp, c.x, f.set.lm())
+		if err != nil {
+			return err
+		}
+		c.x, c.res, c.rss = r.x, r, r.rss
+		c.iters += r.iter
+		if change < 1e-4 {
+			break
+		}
+	}
+	return nil
+}
+
+// counts returns the number of readings and of fitted parameters of a candidate.
+func (c *candidate) counts() (n, k int) {
+	return c.sp.m * c.sp.nrhs, c.sp.nparams() + c.sp.q*c.sp.nrhs
+}
+
+// score computes the information criteria of a candidate (DOMAIN.md "Model selection",
+// from memory: AIC = chi2 + 2k, BIC = chi2 + k ln n, or n ln(RSS/n) for unknown sigma).
+func (f *fitter) score(c *candidate) ModelScore {
+	n, k := c.counts()
+	nf := float64(n)
+	var base float64
+	if f.prob.Sigma > 0 {
+		base = c.rss / (f.prob.Sigma * f.prob.Sigma)
+	} else {
+		base = nf * math.Log(math.Max(c.rss, 1e-300)/nf)
+	}
+	return ModelScore{Count: len(c.sp.geom), Params: k, RSS: c.rss,
+		AIC: base + 2*float64(k), BIC: base + float64(k)*math.Log(nf)}
+}
+
+// guard rejects a fit with more lines that the data do not support: a line pinned at
+// a bound, a current not significantly different from zero (its position is then
+// undetermined), or two lines that coincide within their uncertainty.
+func (f *fitter) guard(c *candidate) string {
+	sum, err := f.summarise(c)
+	if err != nil {
+		return err.Error()
+	}
+	for i, g := range c.sp.geom {
+		if g.z >= g.zHi-1e-9 {
+			return fmt.Sprintf("line %d sits at the minimum depth bound", i+1)
+		}
+		if g.s <= g.sLo+1e-9 || g.s >= g.sHi-1e-9 {
+			return fmt.Sprintf("line %d sits at the edge of the search region", i+1)
+		}
+	}
+	for i, e := range sum.lines {
+		if !(math.Abs(e.Current) > 3*e.CurrentSigma) {
+			return fmt.Sprintf("line %d current %.3g A is within 3 sigma (%.3g A) of zero", i+1, e.Current, e.CurrentSigma)
+		}
+	}
+	for i := range sum.lines {
+		for j := i + 1; j < len(sum.lines); j++ {
+			a, b := sum.lines[i], sum.lines[j]
+			d := norm(sub(a.Point, b.Point))
+			sa := math.Hypot(a.DepthSigma, a.OffsetSigma)
+			sb := math.Hypot(b.DepthSigma, b.OffsetSigma)
+			if d < math.Max(0.01, 3*math.Hypot(sa, sb)) {
+				return fmt.Sprintf("lines %d and %d coincide within their uncertainty", i+1, j+1)
+			}
+		}
+	}
+	return ""
+}

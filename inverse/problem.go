@@ -1,0 +1,263 @@
+package inverse
+
+import (
+	"fmt"
+	"math"
+	"math/cmplx"
+
+	"gonum.org/v1/gonum/mat"
+)
+
+// Problem describes what to fit: field readings at known positions. Give either Fields
+// (DC) or Phasors (AC), not both.
+type Problem struct {
+	// Points are the sensor positions in metres, local east, north, up.
+	Points [][3]float64
+	// Fields are DC readings in nanotesla (east, north, up), one per point.
+	Fields [][3]float64
+	// Phasors are AC readings, complex RMS nanotesla per axis referenced to a common
+	// time origin (as produced by demodulation), one per point.
+	Phasors [][3]complex128
+	// Sigma is the one-sigma reading noise per axis in nT. Zero means unknown: it is
+	// estimated from the residuals (s^2 = RSS/DOF).
+	Sigma float64
+}
+
+// isAC reports whether the problem carries phasors.
+func (p *Problem) isAC() bool { return p.Phasors != nil }
+
+// validate checks the problem and names the first offending reading.
+func (p *Problem) validate() error {
+	n := len(p.Points)
+	switch {
+	case p.Fields != nil && p.Phasors != nil:
+		return fmt.Errorf("inverse: problem has both Fields and Phasors; give one")
+	case p.Fields == nil && p.Phasors == nil:
+		return fmt.Errorf("inverse: problem has neither Fields nor Phasors")
+	case p.Fields != nil && len(p.Fields) != n:
+		return fmt.Errorf("inverse: %d points but %d field readings", n, len(p.Fields))
+	case p.Phasors != nil && len(p.Phasors) != n:
+		return fmt.Errorf("inverse: %d points but %d phasor readings", n, len(p.Phasors))
+	case p.Sigma < 0 || math.IsNaN(p.Sigma) || math.IsInf(p.Sigma, 0):
+		return fmt.Errorf("inverse: reading noise Sigma = %v must be finite and not negative", p.Sigma)
+	}
+	axes := [3]string{"east", "north", "up"}
+	for i, r := range p.Points {
+		for j, v := range r {
+			if !finite(v) {
+				return fmt.Errorf("inverse: reading %d: position %s is %v", i, axes[j], v)
+			}
+		}
+		if p.Fields != nil {
+			for j, v := range p.Fields[i] {
+				if !finite(v) {
+					return fmt.Errorf("inverse: reading %d: field %s is %v", i, axes[j], v)
+				}
+			}
+		} else {
+			for j, v := range p.Phasors[i] {
+				if cmplx.IsNaN(v) || cmplx.IsInf(v) {
+					return fmt.Errorf("inverse: reading %d: phasor %s is %v", i, axes[j], v)
+				}
+			}
+		}
+	}
+	return nil
+}
+
+// BackgroundModel says which background terms are fitted with the sources.
+type BackgroundModel int
+
+const (
+	// BackgroundUniform fits a constant field per axis (the zero value): the Earth's
+	// field and sensor offsets for DC, pickup common to the survey for AC.
+	BackgroundUniform BackgroundModel = iota
+	// BackgroundNone fits no background.
+	BackgroundNone
+	// BackgroundGradient fits a constant field and a source-free linear gradient about
+	// the centroid of the readings (see Background); needs an areal survey.
+	BackgroundGradient
+)
+
+func (b BackgroundModel) columns() int {
+	switch b {
+	case BackgroundNone:
+		return 0
+	case BackgroundGradient:
+		return 8
+	}
+	return 3
+}
+
+// Criterion selects the information criterion used to choose the number of lines.
+type Criterion int
+
+const (
+	// BIC is the Bayesian information criterion (the zero value), chi2 + k ln N, or
+	// N ln(RSS/N) + k ln N when the noise is estimated.
+	BIC Criterion = iota
+	// AIC is Akaike's criterion, chi2 + 2k, or N ln(RSS/N) + 2k.
+	AIC
+)
+
+// Settings tune a fit. The zero value (or nil) is usable; each field documents its
+// default.
+type Settings struct {
+	// Count is the number of lines to fit; 0 chooses 1..MaxCount by Criterion.
+	Count int
+	// MaxCount bounds the automatic choice; 0 means 4.
+	MaxCount int
+	// Criterion for the automatic choice; the zero value is BIC.
+	Criterion Criterion
+	// ReferenceZ, when set, is the height (m, up) below which depths are reported, for
+	// example the ground surface. When nil depths are below the mean sensor height.
+	ReferenceZ *float64
+	// Background selects the background terms; the zero value fits a uniform field.
+	Background BackgroundModel
+	// Azimuth, when set, holds every line at this azimuth (degrees clockwise from
+	// north). When nil the azimuth is fitted for areal surveys and held perpendicular
+	// to the traverse (and reported as not identifiable) for a single traverse.
+	Azimuth *float64
+	// Dip, when set, holds every line at this dip (degrees, positive when the line
+	// descends along its direction). When nil the dip is fitted for areal surveys and
+	// held at 0 for a single traverse.
+	Dip *float64
+	// MinDepth keeps each conductor at least this far (m) below the lowest sensor; 0
+	// means 0.02 m.
+	MinDepth float64
+	// Robust enables Huber weights by iterative reweighting (Huber 1964; Holland &
+	// Welsch 1977), for data with outliers.
+	Robust bool
+	// HuberC is the Huber threshold in units of the robust scale (1.4826 MAD); 0 means
+	// 1.345.
+	HuberC float64
+	// MaxIter bounds the Levenberg-Marquardt iterations per start; 0 means 200.
+	MaxIter int
+	// FTol, XTol and GTol are the relative convergence tolerances (sum of squares,
+	// step, gradient); 0 means 1e-14, 1e-12 and 1e-14.
+	FTol, XTol, GTol float64
+}
+
+func (s *Settings) orDefault() Settings {
+	var out Settings
+	if s != nil {
+		out = *s
+	}
+	if out.MaxCount <= 0 {
+		out.MaxCount = 4
+	}
+	if out.MinDepth <= 0 {
+		out.MinDepth = 0.02
+	}
+	if out.HuberC <= 0 {
+		out.HuberC = 1.345
+	}
+	return out
+}
+
+func (s *Settings) lm() lmSettings {
+	return lmSettings{maxIter: s.MaxIter, ftol: s.FTol, xtol: s.XTol, gtol: s.GTol}
+}
+
+// Identifiable records, per reported quantity, whether the data determine it. A false
+// entry means the value was held or is not resolved; its sigma is then zero and must not
+// be printed as an uncertainty.
+type Identifiable struct {
+	Current, Phase, Depth, Offset, Azimuth, Dip bool
+}
+
+// SourceEstimate is one fitted source with its uncertainties (one sigma).
+type SourceEstimate struct {
+	// Kind is "line" (or "dipole" for a point dipole given to FitStrengths).
+	Kind string
+	// Point is the point on the line nearest the centroid of the readings (m ENU);
+	// Dir is the unit direction along which positive current flows, oriented so that
+	// the azimuth lies in [0, 180).
+	Point, Dir [3]float64
+	// Current in A along Dir (DC), or RMS current (AC, always >= 0).
+	Current, CurrentSigma float64
+	// Phase in degrees of the AC current phasor along Dir, in the time reference of the
+	// readings, in (-180, 180]; RelativePhase is relative to the first (strongest)
+	// source. Zero for DC.
+	Phase, PhaseSigma                 float64
+	RelativePhase, RelativePhaseSigma float64
+	// Depth of Point below the depth reference (Result.DepthReference), m.
+	Depth, DepthSigma float64
+	// Offset is the signed horizontal distance from the centroid of the readings to the
+	// line, positive to the right of Dir (east of a line running north), m.
+	Offset, OffsetSigma float64
+	// Azimuth of Dir in degrees clockwise from north, [0, 180).
+	Azimuth, AzimuthSigma float64
+	// Dip in degrees, positive when the line descends along Dir.
+	Dip, DipSigma float64
+	// Identifiable says which quantities the data determine.
+	Identifiable Identifiable
+	// Notes explain held or unresolved quantities and other cautions.
+	Notes []string
+}
+
+// ModelScore is the information criterion for one candidate number of lines.
+type ModelScore struct {
+	Count    int     // lines
+	Params   int     // fitted parameters (geometry and strengths)
+	RSS      float64 // residual sum of squares, nT^2
+	AIC, BIC float64
+	// Rejected, when not empty, says why this count was not accepted although its
+	// criterion may be lower (the over-fitting guard).
+	Rejected string
+	Chosen   bool
+}
+
+// Result is the outcome of FitLines or FitStrengths.
+type Result struct {
+	// Sources are the fitted lines, strongest first.
+	Sources []SourceEstimate
+	// Background is the fitted uniform field in nT (east, north, up) with one-sigma
+	// uncertainties; for AC, BackgroundPhasor holds the complex background and
+	// Background its magnitude per axis.
+	Background, BackgroundSigma [3]float64
+	BackgroundPhasor            [3]complex128
+	// Gradient holds the gradient terms in nT/m (Gee, Gen, Geu, Gnn, Gnu) when
+	// Settings.Background is BackgroundGradient (DC only).
+	Gradient []float64
+	// Strengths and StrengthSigmas are the fitted linear strengths of FitStrengths in
+	// the sources' units (A, A m^2), in the order of the sources; StrengthPhasors for
+	// AC. Nil for FitLines.
+	Strengths, StrengthSigmas []float64
+	StrengthPhasors           []complex128
+	// RMS is the root-mean-square residual per axis reading, nT.
+	RMS float64
+	// Sigma is the noise used for the uncertainties: Problem.Sigma or, when that is
+	// zero, the estimate sqrt(RSS/DOF).
+	Sigma float64
+	// Chi2 = RSS/Sigma^2 and DOF = readings - parameters. With Sigma estimated Chi2
+	// equals DOF by construction.
+	Chi2 float64
+	DOF  int
+	// Status says why the final fit stopped; Iterations and Starts count its work.
+	Status     Status
+	Iterations int
+	Starts     int
+	// Criteria lists the score of every count tried by the automatic choice.
+	Criteria []ModelScore
+	// Predicted and Residuals (readings minus model) per point, nT; for AC the
+	// phasor versions are set instead.
+	Predicted, Residuals              [][3]float64
+	PredictedPhasors, ResidualPhasors [][3]complex128
+	// Weights are the final robust weights per reading axis (3 per point), nil unless
+	// Settings.Robust.
+	Weights []float64
+	// Covariance of the fitted parameters, named in ParamNames (geometry in m and
+	// radians, strengths in A or nT).
+	Covariance *mat.SymDense
+	ParamNames []string
+	// DepthReference says what depths are measured from: "ReferenceZ" or "mean sensor
+	// height"; ReferenceZ is that height (m).
+	DepthReference string
+	ReferenceZ     float64
+	// SingleTraverse is true when the readings lie along one line, so that azimuth and
+	// dip were held.
+	SingleTraverse bool
+	// Notes are cautions about the whole fit.
+	Notes []string
+}

@@ -1,0 +1,435 @@
+package inverse
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"math/cmplx"
+	"sort"
+
+	"gonum.org/v1/gonum/mat"
+)
+
+// summary is the uncertainty analysis of a candidate fit.
+type summary struct {
+	lines      []SourceEstimate
+	cov        *mat.SymDense // scaled by sigma^2
+	unresolved []bool
+	names      []string
+	v          []float64 // full parameter vector: free geometry, then strengths per rhs
+	sigma      float64
+	dof        int
+	chi2       float64
+	zref       float64
+	refName    string
+}
+
+// reorder sorts the candidate's lines by decreasing current magnitude so that results
+// list the strongest first.
+func (f *fitter) reorder(c *candidate) error {
+	sp := c.sp
+	if err := sp.evaluate(c.x); err != nil {
+		return err
+	}
+	nl, nr := len(sp.geom), sp.nrhs
+	mag := make([]float64, nl)
+	for l := range nl {
+		for k := range nr {
+			mag[l] += sp.coef[l*nr+k] * sp.coef[l*nr+k]
+		}
+	}
+	idx := make([]int, nl)
+	for i := range idx {
+		idx[i] = i
+	}
+	sort.SliceStable(idx, func(a, b int) bool { return mag[idx[a]] > mag[idx[b]] })
+	g := make([]lineGeom, nl)
+	for i, j := range idx {
+		g[i] = sp.geom[j]
+	}
+	sp.geom = g
+	sp.ok = false
+	c.x, _, _ = sp.pack()
+	return sp.evaluate(c.x)
+}
+
+// summarise computes the covariance from the full Jacobian at the solution and the
+// reported quantities of every line with their one-sigma uncertainties (delta method).
+func (f *fitter) summarise(c *candidate) (*summary, error) {
+	if err := f.reorder(c); err != nil {
+		return nil, err
+	}
+	sp := c.sp
+	J, err := sp.fullJacobian(c.x)
+	if err != nil {
+		return nil, err
+	}
+	cov0, unres, err := covariance(J)
+	if err != nil {
+		return nil, err
+	}
+	n, k := c.counts()
+	su := &summary{dof: n - k, unresolved: unres}
+	switch {
+	case f.prob.Sigma > 0:
+		su.sigma = f.prob.Sigma
+	case su.dof > 0:
+		su.sigma = math.Sqrt(c.rss / float64(su.dof))
+	default:
+		return nil, fmt.Errorf("inverse: %d readings leave no degrees of freedom to estimate the noise for %d parameters; give Problem.Sigma", n, k)
+	}
+	su.chi2 = c.rss / (su.sigma * su.sigma)
+	cov0.ScaleSym(su.sigma*su.sigma, cov0)
+	su.cov = cov0
+	su.zref, su.refName = f.sv.zmean, "mean sensor height"
+	if f.set.ReferenceZ != nil {
+		su.zref, su.refName = *f.set.ReferenceZ, "ReferenceZ"
+	}
+	np := sp.nparams()
+	nl, q, nr := len(sp.geom), sp.q, sp.nrhs
+	su.v = append([]float64(nil), c.x...)
+	for kk := range nr {
+		for j := range q {
+			su.v = append(su.v, sp.coef[j*nr+kk])
+		}
+	}
+	su.names = paramNames(sp)
+
+	// Orientation: azimuth of Dir in [0, 180); flipping reverses current and dip.
+	flip := make([]bool, nl)
+	for l, g := range sp.geom {
+		a := math.Mod(g.az, 2*math.Pi)
+		if a < 0 {
+			a += 2 * math.Pi
+		}
+		flip[l] = a >= math.Pi
+	}
+	derive := func(v []float64) []float64 { return deriveQuantities(sp, f.sv, su.zref, flip, v) }
+	base := derive(su.v)
+	nq := len(base) / nl
+	// Gradients by central differences on the (smooth, cheap) map from parameters to
+	// reported quantities, with steps well inside one sigma.
+	grads := make([][]float64, len(base))
+	for i := range grads {
+		grads[i] = make([]float64, len(su.v))
+	}
+	v := append([]float64(nil), su.v...)
+	for j := range su.v {
+		sd := math.Sqrt(math.Max(su.cov.At(j, j), 0))
+		h := 1e-4 * sd
+		if h == 0 || unres[j] {
+			h = 1e-7 * (math.Abs(su.v[j]) + 1)
+		}
+		v[j] = su.v[j] + h
+		up := derive(v)
+		v[j] = su.v[j] - h
+		dn := derive(v)
+		v[j] = su.v[j]
+		for i := range base {
+			d := up[i] - dn[i]
+			if per := quantityPeriod(i % nq); per > 0 {
+				d = math.Remainder(d, per)
+			}
+			grads[i][j] = d / (2 * h)
+		}
+	}
+	sigmaOf := func(i int) float64 {
+		g := mat.NewVecDense(len(su.v), grads[i])
+		return math.Sqrt(math.Max(mat.Inner(g, su.cov, g), 0))
+	}
+	// Which parameters each line depends on (for identifiability).
+	off := 0
+	for l, g := range sp.geom {
+		b := base[l*nq : (l+1)*nq]
+		e := SourceEstimate{Kind: "line"}
+		e.Point = [3]float64{b[qPointE], b[qPointN], b[qPointU]}
+		e.Dir = dirOf(b[qAzimuth]*math.Pi/180, b[qDip]*math.Pi/180)
+		e.Current, e.CurrentSigma = b[qCurrent], sigmaOf(l*nq+qCurrent)
+		e.Depth, e.DepthSigma = b[qDepth], sigmaOf(l*nq+qDepth)
+		e.Offset, e.OffsetSigma = b[qOffset], sigmaOf(l*nq+qOffset)
+		e.Azimuth, e.Dip = b[qAzimuth], b[qDip]
+		geomUnres := unres[off] || unres[off+1]
+		id := Identifiable{Current: true, Depth: !geomUnres, Offset: !geomUnres, Azimuth: !g.holdAz, Dip: !g.holdDip}
+		j := off + 2
+		if !g.holdAz {
+			e.AzimuthSigma = sigmaOf(l*nq + qAzimuth)
+			if unres[j] {
+				id.Azimuth = false
+				e.Notes = append(e.Notes, "azimuth not resolved by the data")
+			}
+			j++
+		} else if f.sv.single && f.set.Azimuth == nil {
+			e.Notes = append(e.Notes, fmt.Sprintf("azimuth not identifiable from a single traverse: held perpendicular to it (%.1f deg)", e.Azimuth))
+		} else {
+			e.Notes = append(e.Notes, fmt.Sprintf("azimuth held at %.1f deg", e.Azimuth))
+		}
+		if !g.holdDip {
+			e.DipSigma = sigmaOf(l*nq + qDip)
+			if unres[j] {
+				id.Dip = false
+				e.Notes = append(e.Notes, "dip not resolved by the data")
+			}
+		} else if f.sv.single && f.set.Dip == nil {
+			e.Notes = append(e.Notes, "dip not identifiable from a single traverse: held horizontal")
+		} else {
+			e.Notes = append(e.Notes, fmt.Sprintf("dip held at %.1f deg", e.Dip))
+		}
+		for kk := range nr {
+			if unres[np+kk*q+l] {
+				id.Current = false
+			}
+		}
+		if nr == 2 {
+			e.Phase, e.PhaseSigma = b[qPhase], sigmaOf(l*nq+qPhase)
+			e.RelativePhase, e.RelativePhaseSigma = b[qRelPhase], sigmaOf(l*nq+qRelPhase)
+			id.Phase = id.Current
+		}
+		if geomUnres {
+			e.Notes = append(e.Notes, "position not resolved by the data")
+		}
+		if !(math.Abs(e.Current) > 2*e.CurrentSigma) {
+			e.Notes = append(e.Notes, "current not significantly different from zero: the position is not determined by the data")
+			id.Depth, id.Offset, id.Azimuth, id.Dip, id.Phase = false, false, false, false, false
+		}
+		if g.z >= g.zHi-1e-9 {
+			e.Notes = append(e.Notes, "held at the minimum depth below the sensors: the depth is not determined")
+			id.Depth = false
+		}
+		if !id.Depth {
+			e.DepthSigma = 0
+		}
+		if !id.Offset {
+			e.OffsetSigma = 0
+		}
+		if !id.Azimuth {
+			e.AzimuthSigma = 0
+		}
+		if !id.Dip {
+			e.DipSigma = 0
+		}
+		if !id.Current {
+			e.CurrentSigma = 0
+		}
+		if !id.Phase {
+			e.PhaseSigma, e.RelativePhaseSigma = 0, 0
+		}
+		e.Identifiable = id
+		su.lines = append(su.lines, e)
+		off += g.nfree()
+	}
+	return su, nil
+}
+
+// Indices of the reported quantities per line in deriveQuantities.
+const (
+	qPointE = iota
+	qPointN
+	qPointU
+	qDepth
+	qOffset
+	qAzimuth
+	qDip
+	qCurrent
+	qPhase
+	qRelPhase
+	nQuantities
+)
+
+// quantityPeriod returns the wrap-around period (degrees) of angle-valued quantities.
+func quantityPeriod(i int) float64 {
+	switch i {
+	case qAzimuth:
+		return 180
+	case qPhase, qRelPhase:
+		return 360
+	}
+	return 0
+}
+
+// deriveQuantities maps a full parameter vector to the reported quantities of every
+// line (nQuantities each).
+func deriveQuantities(sp *separable, sv *survey, zref float64, flip []bool, v []float64) []float64 {
+	np := sp.nparams()
+	nl, q, nr := len(sp.geom), sp.q, sp.nrhs
+	geom := append([]lineGeom(nil), sp.geom...)
+	k := 0
+	for i := range geom {
+		g := &geom[i]
+		g.s, g.z = v[k], v[k+1]
+		k += 2
+		if !g.holdAz {
+			g.az = v[k]
+			k++
+		}
+		if !g.holdDip {
+			g.dip = v[k]
+			k++
+		}
+	}
+	cur := make([]complex128, nl)
+	for l := range nl {
+		re := v[np+l]
+		var im float64
+		if nr == 2 {
+			im = v[np+q+l]
+		}
+		cur[l] = complex(re, im)
+		if flip[l] {
+			cur[l] = -cur[l]
+		}
+	}
+	out := make([]float64, nl*nQuantities)
+	for l, g := range geom {
+		ln := g.line()
+		u := ln.Dir
+		az, dip := g.az, g.dip
+		if flip[l] {
+			u = scale(u, -1)
+			az, dip = az+math.Pi, -dip
+		}
+		pt := add(ln.Point, scale(u, dot(sub(sv.centroid, ln.Point), u)))
+		right := [3]float64{math.Cos(az), -math.Sin(az), 0}
+		o := out[l*nQuantities:]
+		o[qPointE], o[qPointN], o[qPointU] = pt[0], pt[1], pt[2]
+		o[qDepth] = zref - pt[2]
+		o[qOffset] = dot(sub(pt, sv.centroid), right)
+		azd := math.Mod(az*180/math.Pi, 360)
+		if azd < 0 {
+			azd += 360
+		}
+		o[qAzimuth] = math.Mod(azd, 180)
+		o[qDip] = dip * 180 / math.Pi
+		if nr == 1 {
+			o[qCurrent] = real(cur[l])
+		} else {
+			o[qCurrent] = cmplx.Abs(cur[l])
+			o[qPhase] = cmplx.Phase(cur[l]) * 180 / math.Pi
+			o[qRelPhase] = cmplx.Phase(cur[l]/cur[0]) * 180 / math.Pi
+		}
+	}
+	return out
+}
+
+func paramNames(sp *separable) []string {
+	var names []string
+	for l, g := range sp.geom {
+		p := fmt.Sprintf("line%d.", l+1)
+		names = append(names, p+"offset", p+"height")
+		if !g.holdAz {
+			names = append(names, p+"azimuth")
+		}
+		if !g.holdDip {
+			names = append(names, p+"dip")
+		}
+	}
+	bgn := []string{"bg.e", "bg.n", "bg.u", "grad.ee", "grad.en", "grad.eu", "grad.nn", "grad.nu"}
+	for k := range sp.nrhs {
+		sfx := ""
+		if sp.nrhs == 2 {
+			sfx = [2]string{".re", ".im"}[k]
+		}
+		for l := range sp.geom {
+			names = append(names, fmt.Sprintf("line%d.current%s", l+1, sfx))
+		}
+		for j := range sp.bg.columns() {
+			names = append(names, bgn[j]+sfx)
+		}
+	}
+	return names
+}
+
+// report builds the Result of the chosen candidate.
+func (f *fitter) report(c *candidate, scores []ModelScore) (*Result, error) {
+	if c == nil {
+		return nil, errors.New("inverse: no acceptable fit")
+	}
+	su, err := f.summarise(c)
+	if err != nil {
+		return nil, err
+	}
+	sp := c.sp
+	r := &Result{
+		Sources: su.lines, Sigma: su.sigma, Chi2: su.chi2, DOF: su.dof,
+		Status: c.res.status, Iterations: c.iters, Starts: f.starts, Criteria: scores,
+		Covariance: su.cov, ParamNames: su.names, DepthReference: su.refName, ReferenceZ: su.zref,
+		SingleTraverse: f.sv.single,
+	}
+	np := sp.nparams()
+	nl, q, nr := len(sp.geom), sp.q, sp.nrhs
+	if nb := sp.bg.columns(); nb > 0 {
+		for j := range 3 {
+			re := su.v[np+nl+j]
+			sre := math.Sqrt(su.cov.At(np+nl+j, np+nl+j))
+			if nr == 1 {
+				r.Background[j], r.BackgroundSigma[j] = re, sre
+				continue
+			}
+			im := su.v[np+q+nl+j]
+			sim := math.Sqrt(su.cov.At(np+q+nl+j, np+q+nl+j))
+			r.BackgroundPhasor[j] = complex(re, im)
+			mag := math.Hypot(re, im)
+			r.Background[j] = mag
+			if mag > 0 {
+				r.BackgroundSigma[j] = math.Hypot(re*sre, im*sim) / mag
+			} else {
+				r.BackgroundSigma[j] = math.Max(sre, sim)
+			}
+		}
+		if nb == 8 && nr == 1 {
+			r.Gradient = append([]float64(nil), su.v[np+nl+3:np+nl+8]...)
+		}
+	}
+	// Residuals and predictions, unweighted.
+	saved := sp.w
+	res, err := sp.fullResiduals(c.x)
+	sp.w = saved
+	if err != nil {
+		return nil, err
+	}
+	n := len(f.sv.pts)
+	var ss float64
+	if nr == 1 {
+		r.Predicted = make([][3]float64, n)
+		r.Residuals = make([][3]float64, n)
+		for i := range n {
+			for j := range 3 {
+				e := res[3*i+j]
+				r.Residuals[i][j] = e
+				r.Predicted[i][j] = f.prob.Fields[i][j] - e
+				ss += e * e
+			}
+		}
+	} else {
+		r.PredictedPhasors = make([][3]complex128, n)
+		r.ResidualPhasors = make([][3]complex128, n)
+		for i := range n {
+			for j := range 3 {
+				e := complex(res[(3*i+j)*2], res[(3*i+j)*2+1])
+				r.ResidualPhasors[i][j] = e
+				r.PredictedPhasors[i][j] = f.prob.Phasors[i][j] - e
+				ss += real(e)*real(e) + imag(e)*imag(e)
+			}
+		}
+	}
+	r.RMS = math.Sqrt(ss / float64(3*n))
+	if sp.w != nil {
+		r.Weights = make([]float64, len(sp.w))
+		for i, w := range sp.w {
+			r.Weights[i] = w * w
+		}
+	}
+	if !r.Status.Converged() {
+		r.Notes = append(r.Notes, "the fit did not converge: "+r.Status.String())
+	}
+	if f.prob.Sigma > 0 && su.dof > 0 {
+		// A chi-square far above its degrees of freedom says the model or the noise
+		// level is wrong; the sigmas then understate the uncertainty.
+		if z := (su.chi2 - float64(su.dof)) / math.Sqrt(2*float64(su.dof)); z > 5 {
+			r.Notes = append(r.Notes, fmt.Sprintf("chi-square %.1f for %d degrees of freedom: the model does not explain the readings to the stated noise", su.chi2, su.dof))
+		}
+	}
+	if f.set.Robust {
+		r.Notes = append(r.Notes, "robust (Huber) weights: uncertainties are approximate")
+	}
+	return r, nil
+}

@@ -1,0 +1,245 @@
+package inverse
+
+import (
+	"math"
+	"math/cmplx"
+	"sort"
+)
+
+// survey holds what the seeding and reporting need to know about the readings.
+type survey struct {
+	pts      [][3]float64
+	y        []float64 // 3 rows per point x nrhs, row-major (nT)
+	nrhs     int
+	centroid [3]float64 // mean position
+	anchor   [3]float64 // centroid at height 0: anchor of the lines' crossing planes
+	t1       [3]float64 // principal horizontal direction of the positions
+	spread   [2]float64 // RMS spread along t1 and across it, m
+	single   bool       // readings along one traverse
+	zmin     float64
+	zmean    float64
+	extent   float64 // largest horizontal distance from the centroid, m
+}
+
+// singleTraverseRatio: readings whose RMS spread across their principal direction is
+// below this fraction of the spread along it are treated as one traverse.
+const singleTraverseRatio = 0.1
+
+func newSurvey(p *Problem) *survey {
+	n := len(p.Points)
+	sv := &survey{pts: p.Points, nrhs: 1, zmin: math.Inf(1)}
+	if p.isAC() {
+		sv.nrhs = 2
+	}
+	sv.y = make([]float64, 3*n*sv.nrhs)
+	for i := range n {
+		for j := range 3 {
+			if p.isAC() {
+				v := p.Phasors[i][j]
+				sv.y[(3*i+j)*2] = real(v)
+				sv.y[(3*i+j)*2+1] = imag(v)
+			} else {
+				sv.y[3*i+j] = p.Fields[i][j]
+			}
+		}
+	}
+	for _, r := range p.Points {
+		sv.centroid = add(sv.centroid, r)
+		sv.zmin = math.Min(sv.zmin, r[2])
+	}
+	sv.centroid = scale(sv.centroid, 1/float64(n))
+	sv.zmean = sv.centroid[2]
+	sv.anchor = [3]float64{sv.centroid[0], sv.centroid[1], 0}
+	var cee, cen, cnn float64
+	for _, r := range p.Points {
+		de, dn := r[0]-sv.centroid[0], r[1]-sv.centroid[1]
+		cee += de * de
+		cen += de * dn
+		cnn += dn * dn
+		sv.extent = math.Max(sv.extent, math.Hypot(de, dn))
+	}
+	cee, cen, cnn = cee/float64(n), cen/float64(n), cnn/float64(n)
+	// Eigen decomposition of the 2x2 horizontal covariance.
+	tr, det := cee+cnn, cee*cnn-cen*cen
+	disc := math.Sqrt(math.Max(tr*tr/4-det, 0))
+	l1, l2 := tr/2+disc, math.Max(tr/2-disc, 0)
+	ang := 0.5 * math.Atan2(2*cen, cee-cnn)
+	sv.t1 = [3]float64{math.Cos(ang), math.Sin(ang), 0}
+	sv.spread = [2]float64{math.Sqrt(l1), math.Sqrt(l2)}
+	sv.single = sv.spread[1] < singleTraverseRatio*sv.spread[0]
+	return sv
+}
+
+// anomaly returns, per point, a real anomaly vector from data rows d (3 rows per point x
+// nrhs): for DC the reading minus the per-axis median (a robust background); for AC the
+// phasor rotated so that its largest component is real.
+func anomaly(d []float64, n, nrhs int) [][3]float64 {
+	a := make([][3]float64, n)
+	if nrhs == 1 {
+		var med [3]float64
+		col := make([]float64, n)
+		for j := range 3 {
+			for i := range n {
+				col[i] = d[3*i+j]
+			}
+			med[j] = median(col)
+		}
+		for i := range n {
+			for j := range 3 {
+				a[i][j] = d[3*i+j] - med[j]
+			}
+		}
+		return a
+	}
+	for i := range n {
+		var c [3]complex128
+		big := 0
+		for j := range 3 {
+			c[j] = complex(d[(3*i+j)*2], d[(3*i+j)*2+1])
+			if cmplx.Abs(c[j]) > cmplx.Abs(c[big]) {
+				big = j
+			}
+		}
+		rot := cmplx.Rect(1, -cmplx.Phase(c[big]))
+		for j := range 3 {
+			a[i][j] = real(c[j] * rot)
+		}
+	}
+	return a
+}
+
+func median(v []float64) float64 {
+	s := append([]float64(nil), v...)
+	sort.Float64s(s)
+	n := len(s)
+	if n == 0 {
+		return 0
+	}
+	if n%2 == 1 {
+		return s[n/2]
+	}
+	return 0.5 * (s[n/2-1] + s[n/2])
+}
+
+// seed is a starting geometry for one line: horizontal position of a point over it,
+// azimuth (radians) and height of the line.
+type seed struct {
+	e, n, az, z float64
+}
+
+// azimuthCandidates proposes line azimuths from the anomaly: perpendicular to the
+// horizontal anomaly field at its peak (the field of a line is perpendicular to it), the
+// long axis of the region above half the peak, and a coarse fan.
+func (sv *survey) azimuthCandidates(a [][3]float64) []float64 {
+	ip := peak(a)
+	var out []float64
+	if h := math.Hypot(a[ip][0], a[ip][1]); h > 0 {
+		out = append(out, math.Atan2(a[ip][1], -a[ip][0]))
+	}
+	amax := norm(a[ip])
+	var w, ce, cn float64
+	for i, v := range a {
+		if m := norm(v); m >= amax/2 {
+			w += m
+			ce += m * sv.pts[i][0]
+			cn += m * sv.pts[i][1]
+		}
+	}
+	ce, cn = ce/w, cn/w
+	var see, sen, snn float64
+	for i, v := range a {
+		if m := norm(v); m >= amax/2 {
+			de, dn := sv.pts[i][0]-ce, sv.pts[i][1]-cn
+			see += m * de * de
+			sen += m * de * dn
+			snn += m * dn * dn
+		}
+	}
+	if see+snn > 0 {
+		ang := 0.5 * math.Atan2(2*sen, see-snn) // angle from east of the long axis
+		out = append(out, math.Pi/2-ang)
+	}
+	for k := range 4 {
+		out = append(out, float64(k)*math.Pi/4)
+	}
+	// Remove near duplicates (lines are undirected: compare modulo pi).
+	var uniq []float64
+	for _, az := range out {
+		dup := false
+		for _, b := range uniq {
+			d := math.Mod(math.Abs(az-b), math.Pi)
+			if d < 0.17 || math.Pi-d < 0.17 {
+				dup = true
+				break
+			}
+		}
+		if !dup {
+			uniq = append(uniq, az)
+		}
+	}
+	return uniq
+}
+
+// peak returns the index of the largest anomaly magnitude.
+func peak(a [][3]float64) int {
+	ip := 0
+	for i := range a {
+		if norm(a[i]) > norm(a[ip]) {
+			ip = i
+		}
+	}
+	return ip
+}
+
+// seedFor places a line of azimuth az from the anomaly by the depth rules of thumb
+// (DOMAIN.md, common practice): the horizontal component across the line peaks over it,
+// and its half-width at half maximum equals the depth below the sensor.
+func (sv *survey) seedFor(a [][3]float64, az float64) seed {
+	nh := [3]float64{math.Cos(az), -math.Sin(az), 0} // horizontal, across the line
+	ip, bp := 0, 0.0
+	for i, v := range a {
+		if c := math.Abs(dot(v, nh)); c > bp {
+			ip, bp = i, c
+		}
+	}
+	p := sv.pts[ip]
+	hw := [2]float64{math.Inf(1), math.Inf(1)}
+	for i, v := range a {
+		if math.Abs(dot(v, nh)) <= bp/2 {
+			d := dot(sub(sv.pts[i], p), nh)
+			side := 0
+			if d < 0 {
+				side, d = 1, -d
+			}
+			hw[side] = math.Min(hw[side], d)
+		}
+	}
+	var h float64
+	switch {
+	case !math.IsInf(hw[0], 1) && !math.IsInf(hw[1], 1):
+		h = 0.5 * (hw[0] + hw[1])
+	case !math.IsInf(hw[0], 1):
+		h = hw[0]
+	case !math.IsInf(hw[1], 1):
+		h = hw[1]
+	default:
+		h = math.Max(sv.extent, 0.5)
+	}
+	return seed{e: p[0], n: p[1], az: az, z: p[2] - h}
+}
+
+// geomFrom turns a seed into a line geometry with its crossing plane perpendicular to
+// the seed direction and the bounds of the fit.
+func (sv *survey) geomFrom(sd seed, holdAz, holdDip bool, dip, minDepth float64) lineGeom {
+	n0 := [3]float64{math.Cos(sd.az), -math.Sin(sd.az), 0}
+	lim := 2*sv.extent + 5
+	zHi := sv.zmin - minDepth
+	z := math.Min(sd.z, zHi)
+	return lineGeom{
+		anchor: sv.anchor, n0: n0,
+		s: dot(sub([3]float64{sd.e, sd.n, 0}, sv.anchor), n0),
+		z: z, az: sd.az, dip: dip,
+		holdAz: holdAz, holdDip: holdDip,
+		sLo: -lim, sHi: lim, zHi: zHi, zLo: sv.zmin - 10*(sv.extent+5),
+	}
+}
