@@ -1,0 +1,50 @@
+// Package report turns fit results into what people read: the result
+// document (Document) and its four renderings.
+//
+//   - WriteJSON: the result document, field names fixed by the project
+//     (groups[] with key, points, rms_nt, background_nt and sources[] with
+//     kind, point_m, direction, current_a, current_sigma_a, phase_deg,
+//     depth_m, depth_sigma_m; findings[]; schema_version), read back by
+//     ReadJSON.
+//   - WriteCSV: one row per group and source, in route order, for a
+//     spreadsheet.
+//   - WriteGeoJSON: the route, conductors and findings for a GIS, as an
+//     RFC 7946 FeatureCollection in WGS84 longitude and latitude when the
+//     survey was geo-referenced, or in local metres, marked as such, when
+//     it was not.
+//   - WriteHTML: the crew report, one self-contained page with the cautions,
+//     a summary, plots drawn with gonum.org/v1/plot as inline SVG, and the
+//     corrections and settings used.
+//
+// Every writer validates the document first (Document.Validate) and writes
+// nothing when it is invalid, so a NaN never reaches a file. The writers
+// take an io.Writer; the caller makes files atomic (write to a temporary
+// name, then rename).
+//
+// # Conventions
+//
+// Positions are metres in a local east, north, up frame (Frame), with an
+// optional WGS84 origin. Local positions are converted to WGS84 through the
+// ellipsoid (NIMA TR8350.2: a = 6378137 m, 1/f = 298.257223563): ENU to
+// Earth-centred Earth-fixed about the origin, then ECEF to geodetic
+// latitude by fixed-point iteration on
+//
+//	tan(phi) = z / (p (1 - e^2 N / (N + h))),  p = sqrt(x^2 + y^2).
+//
+// Depths are below DepthReference: the sensors' mean height unless a ground
+// reference was given; cover is depth less the sensors' height above ground
+// when that is known. Each line source's direction is a unit vector and its
+// current is signed along it; SetRoute turns them all along the route. An
+// AC current is the RMS of the phasor with phase_deg.
+//
+// Uncertainties are one standard deviation throughout the document; the
+// crew report's plots draw two.
+//
+// # Along-route findings
+//
+// SetRoute takes the analysis of package undercurrent/inverse/route (steps
+// in current, shallow cover, poor fits, dipole-like anomalies) into the
+// document. The minimum cover is whatever the user named: no single value is
+// law (US NEC Table 300.5 asks 600 mm for direct-burial cable up to 1000 V
+// in general locations; UK distribution practice 450-700 mm).
+package report

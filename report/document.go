@@ -1,0 +1,321 @@
+package report
+
+// SchemaVersion is the version of the result document written by this
+// package. It grows by one whenever a field changes meaning or is removed;
+// adding a field does not change it.
+const SchemaVersion = 1
+
+// Document is the result of one locate run: what was read, how it was
+// corrected, what was fitted per group, the route built from the groups and
+// the findings a crew should act on. It is written as JSON (WriteJSON), CSV
+// (WriteCSV), GeoJSON (WriteGeoJSON) and a crew report (WriteHTML).
+//
+// Positions are metres in the local east, north, up frame described by
+// Frame; fields are nanotesla; currents amperes (RMS for AC); angles
+// degrees; every sigma is one standard deviation.
+type Document struct {
+	// SchemaVersion is SchemaVersion when written by this package.
+	SchemaVersion int `json:"schema_version"`
+	// Tool is the program that wrote the document.
+	Tool Tool `json:"tool"`
+	// Created is when the document was made, RFC 3339 in UTC.
+	Created string `json:"created,omitempty"`
+	// Title and Site name the survey for the report ("Fenwick Lane cable
+	// route", "Harrow Fen substation").
+	Title string `json:"title,omitempty"`
+	Site  string `json:"site,omitempty"`
+	// Inputs are the files read, with checksums.
+	Inputs []Input `json:"inputs"`
+	// Calibration and BaseStation describe the corrections applied; nil
+	// when none was.
+	Calibration *Correction `json:"calibration,omitempty"`
+	BaseStation *Correction `json:"base_station,omitempty"`
+	// Frame is the coordinate frame of every position in the document.
+	Frame Frame `json:"frame"`
+	// DepthReference says what depth_m is measured from.
+	DepthReference DepthReference `json:"depth_reference"`
+	// Signal says whether the fit used DC fields or demodulated AC.
+	Signal Signal `json:"signal"`
+	// Settings are the options of the run, as the user gave them.
+	Settings map[string]string `json:"settings,omitempty"`
+	// MinCover is the minimum cover checked, nil when none was given.
+	MinCover *MinCover `json:"min_cover,omitempty"`
+	// Groups hold one fit each; one group when the run was not grouped.
+	// When there is a route they are in route order.
+	Groups []Group `json:"groups"`
+	// Route is the along-route profile built from the groups; nil with
+	// fewer than two groups.
+	Route *Route `json:"route,omitempty"`
+	// Findings list what a crew should act on, most pressing first.
+	Findings []Finding `json:"findings"`
+	// Warnings are notes about the run (skipped rows, clipped readings).
+	Warnings []string `json:"warnings,omitempty"`
+}
+
+// Tool names the program and its version.
+type Tool struct {
+	Name    string `json:"name"`
+	Version string `json:"version"`
+}
+
+// Input is one file read.
+type Input struct {
+	// Role is what the file was used for: "survey", "base", "calibration".
+	Role string `json:"role"`
+	// Path is the file name as given on the command line.
+	Path string `json:"path"`
+	// SHA256 is the hex SHA-256 of the file's bytes.
+	SHA256 string `json:"sha256,omitempty"`
+	// Rows is the number of readings kept from it (0 when not a log).
+	Rows int `json:"rows,omitempty"`
+}
+
+// Correction describes a correction applied to the readings.
+type Correction struct {
+	// File is the calibration file or base-station log.
+	File string `json:"file,omitempty"`
+	// Summary is one line saying what was corrected and by how much.
+	Summary string `json:"summary"`
+}
+
+// Frame kinds.
+const (
+	// FrameLocalENU: metres east, north and up of a local origin.
+	FrameLocalENU = "local-enu"
+)
+
+// Frame is the coordinate frame of the document's positions.
+type Frame struct {
+	// Kind is FrameLocalENU.
+	Kind string `json:"kind"`
+	// Origin is the WGS84 position of the local origin when the input
+	// was geo-referenced; nil when positions are only local.
+	Origin *Origin `json:"origin,omitempty"`
+}
+
+// Origin is a WGS84 position.
+type Origin struct {
+	Lat float64 `json:"lat_deg"`
+	Lon float64 `json:"lon_deg"`
+	H   float64 `json:"height_m"`
+}
+
+// Depth reference kinds.
+const (
+	// DepthBelowSensors: depth below the mean height of the sensors.
+	DepthBelowSensors = "mean-sensor-height"
+	// DepthBelowGround: depth below a ground surface the user gave.
+	DepthBelowGround = "ground"
+)
+
+// DepthReference says what depths are measured from.
+type DepthReference struct {
+	// Kind is DepthBelowSensors or DepthBelowGround.
+	Kind string `json:"kind"`
+	// Z is the up coordinate of the reference, m.
+	Z float64 `json:"z_m"`
+	// SensorHeight is the sensors' mean height above ground, m, when
+	// known (cover = depth - SensorHeight for DepthBelowSensors); zero
+	// when unknown or when Kind is DepthBelowGround.
+	SensorHeight float64 `json:"sensor_height_m,omitempty"`
+}
+
+// Signal modes.
+const (
+	SignalDC = "dc"
+	SignalAC = "ac"
+)
+
+// Signal describes what was fitted.
+type Signal struct {
+	// Mode is SignalDC or SignalAC.
+	Mode string `json:"mode"`
+	// FrequencyHz and WindowS are the demodulation frequency and window
+	// length for AC; zero for DC.
+	FrequencyHz float64 `json:"frequency_hz,omitempty"`
+	WindowS     float64 `json:"window_s,omitempty"`
+}
+
+// MinCover is a minimum depth of cover and where it comes from.
+type MinCover struct {
+	Depth float64 `json:"depth_m"`
+	// Code names the code or practice the user took it from; empty when
+	// none was named.
+	Code string `json:"code,omitempty"`
+}
+
+// Group is the fit of one group of readings.
+type Group struct {
+	// Key is the group's value of the grouping column; empty when the
+	// run was not grouped.
+	Key string `json:"key"`
+	// Points is the number of readings fitted.
+	Points int `json:"points"`
+	// Chainage is the group's distance along the route, m; nil without
+	// a route.
+	Chainage *float64 `json:"chainage_m,omitempty"`
+	// Centroid is the mean position of the readings, m.
+	Centroid [3]float64 `json:"centroid_m"`
+	// RMS is the root-mean-square residual, nT.
+	RMS float64 `json:"rms_nt"`
+	// Background is the fitted uniform field [east, north, up], nT, and
+	// its sigma.
+	Background      [3]float64 `json:"background_nt"`
+	BackgroundSigma [3]float64 `json:"background_sigma_nt"`
+	// Chi2 and DOF are the fit's chi-square and degrees of freedom.
+	Chi2 float64 `json:"chi2"`
+	DOF  int     `json:"dof"`
+	// OK is false when the fit failed or is unusable.
+	OK bool `json:"ok"`
+	// Status says why the fit stopped.
+	Status string `json:"status,omitempty"`
+	// Problem says why the fit is poor or ambiguous; empty when sound.
+	Problem string `json:"problem,omitempty"`
+	// Criteria compare models with different numbers of conductors.
+	Criteria []Criterion `json:"criteria,omitempty"`
+	// Sources are the fitted conductors and objects.
+	Sources []Source `json:"sources"`
+	// Notes are remarks on the fit.
+	Notes []string `json:"notes,omitempty"`
+	// Profile holds a compact copy of the readings for plots; nil when
+	// not kept.
+	Profile *Profile `json:"profile,omitempty"`
+}
+
+// Criterion scores the model with Count conductors.
+type Criterion struct {
+	Count  int     `json:"count"`
+	AIC    float64 `json:"aic"`
+	BIC    float64 `json:"bic"`
+	RSS    float64 `json:"rss_nt2"`
+	Chosen bool    `json:"chosen,omitempty"`
+}
+
+// Source kinds.
+const (
+	KindLine   = "line"
+	KindDipole = "dipole"
+)
+
+// Source is one fitted conductor (or, for KindDipole, a magnetised object).
+type Source struct {
+	// Kind is KindLine or KindDipole.
+	Kind string `json:"kind"`
+	// Point is a point on the conductor, the one nearest the centroid of
+	// the readings (the dipole's position for KindDipole), m.
+	Point [3]float64 `json:"point_m"`
+	// Direction is the conductor's unit direction.
+	Direction [3]float64 `json:"direction"`
+	// Current is the current along Direction, A (RMS for AC), and its
+	// sigma.
+	Current      float64 `json:"current_a"`
+	CurrentSigma float64 `json:"current_sigma_a"`
+	// Phase is the AC phase, degrees, and its sigma; nil for DC.
+	Phase      *float64 `json:"phase_deg,omitempty"`
+	PhaseSigma *float64 `json:"phase_sigma_deg,omitempty"`
+	// Depth is the depth of Point below the depth reference, m.
+	Depth      float64 `json:"depth_m"`
+	DepthSigma float64 `json:"depth_sigma_m"`
+	// Offset is the horizontal distance of the conductor from the
+	// readings' centroid, m, signed positive to the right looking along
+	// Direction.
+	Offset      float64 `json:"offset_m"`
+	OffsetSigma float64 `json:"offset_sigma_m"`
+	// Azimuth is the direction's bearing, degrees clockwise from north.
+	Azimuth      float64 `json:"azimuth_deg"`
+	AzimuthSigma float64 `json:"azimuth_sigma_deg"`
+	// Dip is the direction's angle below horizontal, degrees.
+	Dip      float64 `json:"dip_deg"`
+	DipSigma float64 `json:"dip_sigma_deg"`
+	// Span is the extent of the readings along Direction, relative to
+	// Point, m: the stretch of conductor the readings see.
+	Span [2]float64 `json:"span_m"`
+	// Moment is a dipole's moment, A m^2, and its sigma; nil for lines.
+	Moment      *[3]float64 `json:"moment_am2,omitempty"`
+	MomentSigma *[3]float64 `json:"moment_sigma_am2,omitempty"`
+	// Unidentifiable lists quantities the readings cannot determine
+	// ("azimuth", "depth").
+	Unidentifiable []string `json:"unidentifiable,omitempty"`
+	Notes          []string `json:"notes,omitempty"`
+}
+
+// Profile is a compact copy of a group's readings: enough to plot the
+// measured field against the fitted one across the conductor.
+type Profile struct {
+	// Component says what the field values are: "dc" (the field, nT),
+	// or "ac-in-phase" (the real part of the RMS phasor after turning it
+	// by minus the first source's phase, nT).
+	Component string `json:"component"`
+	// Positions are the reading positions, m.
+	Positions [][3]float64 `json:"positions_m"`
+	// Offset is each reading's horizontal offset across the first
+	// source, m, positive to the right looking along its direction.
+	Offset []float64 `json:"offset_m"`
+	// Measured and Predicted are the field [east, north, up], nT.
+	Measured  [][3]float64 `json:"measured_nt"`
+	Predicted [][3]float64 `json:"predicted_nt"`
+}
+
+// Route is the along-route profile built from the groups.
+type Route struct {
+	// Length is the chainage of the last station, m.
+	Length float64 `json:"length_m"`
+	// Stations are the groups in route order.
+	Stations []Station `json:"stations"`
+}
+
+// Station is one group's conductor on the route.
+type Station struct {
+	Key      string  `json:"key"`
+	Chainage float64 `json:"chainage_m"`
+	// Point and Direction are the conductor's, Direction turned along
+	// increasing chainage.
+	Point     [3]float64 `json:"point_m"`
+	Direction [3]float64 `json:"direction"`
+	// Current is signed along Direction (RMS for AC, with Phase).
+	Current      float64  `json:"current_a"`
+	CurrentSigma float64  `json:"current_sigma_a"`
+	Phase        *float64 `json:"phase_deg,omitempty"`
+	Depth        float64  `json:"depth_m"`
+	DepthSigma   float64  `json:"depth_sigma_m"`
+	// Cover is depth below ground, m, when the ground is known.
+	Cover *float64 `json:"cover_m,omitempty"`
+	// Used is true when the station entered the step and cover checks.
+	Used bool `json:"used"`
+}
+
+// Severities of findings, most pressing first.
+const (
+	SeverityWarning = "warning"
+	SeverityCaution = "caution"
+	SeverityInfo    = "info"
+)
+
+// Finding is something a crew should act on or know.
+type Finding struct {
+	// Kind is "current-step", "shallow-cover", "poor-fit",
+	// "dipole-anomaly", or another kind a later version adds.
+	Kind string `json:"kind"`
+	// Severity is SeverityWarning, SeverityCaution or SeverityInfo.
+	Severity string `json:"severity"`
+	// ChainageFrom and ChainageTo bracket the finding along the route,
+	// m; a current step lies between them.
+	ChainageFrom float64 `json:"chainage_from_m"`
+	ChainageTo   float64 `json:"chainage_to_m"`
+	// Position is the best location, m.
+	Position [3]float64 `json:"position_m"`
+	// Groups are the keys of the groups involved.
+	Groups []string `json:"groups,omitempty"`
+	// Message is one plain sentence.
+	Message string `json:"message"`
+	// Values are the numbers behind the finding.
+	Values []Value `json:"values,omitempty"`
+}
+
+// Value is a number with its sigma and unit.
+type Value struct {
+	Name  string  `json:"name"`
+	Value float64 `json:"value"`
+	Sigma float64 `json:"sigma,omitempty"`
+	Unit  string  `json:"unit,omitempty"`
+}

@@ -1,0 +1,155 @@
+package report
+
+import (
+	"math"
+	"sort"
+
+	"undercurrent/inverse/route"
+)
+
+// SetRoute records the along-route analysis r in d: it fills d.Route,
+// gives every group its chainage, turns each group's line sources to point
+// along increasing chainage (negating current, or adding 180 degrees to the
+// phase, and flipping azimuth, dip, offset, span and the profile's offsets
+// to match), puts d.Groups in route order (groups
+// with no station keep their order, after the others), and adds r's
+// findings to d.Findings, which it then sorts with SortFindings. Cover is
+// reported per station when the document's depth reference knows the
+// ground (DepthBelowGround, or a non-zero sensor height).
+func (d *Document) SetRoute(r *route.Route) {
+	if r == nil {
+		return
+	}
+	ref := d.DepthReference
+	groundKnown := ref.Kind == DepthBelowGround || ref.SensorHeight > 0
+	out := &Route{Length: r.Length, Stations: make([]Station, len(r.Stations))}
+	pos := map[string]int{}
+	for i, p := range r.Stations {
+		s := Station{
+			Key:          p.Key,
+			Chainage:     p.Chainage,
+			Point:        p.Point,
+			Direction:    p.Dir,
+			Current:      p.Current,
+			CurrentSigma: p.CurrentSigma,
+			Depth:        p.Depth,
+			DepthSigma:   p.DepthSigma,
+			Used:         p.OK && !p.Dipole,
+		}
+		if p.AC {
+			ph := p.Phase
+			s.Phase = &ph
+		}
+		if groundKnown && s.Used {
+			c := p.Depth
+			if ref.Kind == DepthBelowSensors {
+				c -= ref.SensorHeight
+			}
+			s.Cover = &c
+		}
+		out.Stations[i] = s
+		if _, dup := pos[p.Key]; !dup {
+			pos[p.Key] = i
+		}
+	}
+	d.Route = out
+	for i := range d.Groups {
+		g := &d.Groups[i]
+		k, ok := pos[g.Key]
+		if !ok {
+			continue
+		}
+		c := r.Stations[k].Chainage
+		g.Chainage = &c
+		// Turn the group's conductors along the route too, so that the
+		// document reads the same way everywhere.
+		t := r.Stations[k].Dir
+		for j := range g.Sources {
+			s := &g.Sources[j]
+			if s.Kind == KindDipole || s.Direction[0]*t[0]+s.Direction[1]*t[1] >= 0 {
+				continue
+			}
+			flipSource(s)
+			if j == 0 && g.Profile != nil {
+				flipProfile(g.Profile)
+			}
+		}
+	}
+	sort.SliceStable(d.Groups, func(i, j int) bool {
+		a, b := d.Groups[i].Chainage, d.Groups[j].Chainage
+		if a == nil || b == nil {
+			return a != nil && b == nil
+		}
+		return *a < *b
+	})
+	for _, f := range r.Findings {
+		nf := Finding{
+			Kind:         string(f.Kind),
+			Severity:     string(f.Severity),
+			ChainageFrom: f.From,
+			ChainageTo:   f.To,
+			Position:     f.Position,
+			Groups:       append([]string(nil), f.Keys...),
+			Message:      f.Message,
+		}
+		for _, v := range f.Values {
+			nf.Values = append(nf.Values, Value{Name: v.Name, Value: v.Value, Sigma: v.Sigma, Unit: v.Unit})
+		}
+		d.Findings = append(d.Findings, nf)
+	}
+	SortFindings(d.Findings)
+}
+
+// flipSource describes the same line conductor with its direction reversed.
+func flipSource(s *Source) {
+	for a := range s.Direction {
+		s.Direction[a] = -s.Direction[a]
+	}
+	if s.Phase != nil {
+		p := math.Mod(*s.Phase+360, 360) - 180 // +180 wrapped to [-180, 180)
+		s.Phase = &p
+	} else {
+		s.Current = -s.Current
+	}
+	s.Azimuth = math.Mod(s.Azimuth+180, 360)
+	s.Dip = -s.Dip
+	s.Offset = -s.Offset
+	s.Span = [2]float64{-s.Span[1], -s.Span[0]}
+}
+
+// flipProfile negates the offsets of p (measured across a reversed
+// direction) and keeps them increasing.
+func flipProfile(p *Profile) {
+	n := len(p.Offset)
+	for i, j := 0, n-1; i < j; i, j = i+1, j-1 {
+		p.Positions[i], p.Positions[j] = p.Positions[j], p.Positions[i]
+		p.Offset[i], p.Offset[j] = p.Offset[j], p.Offset[i]
+		p.Measured[i], p.Measured[j] = p.Measured[j], p.Measured[i]
+		p.Predicted[i], p.Predicted[j] = p.Predicted[j], p.Predicted[i]
+	}
+	for i := range p.Offset {
+		p.Offset[i] = -p.Offset[i]
+	}
+}
+
+// SortFindings orders findings most pressing first (warning, caution,
+// info), then by chainage.
+func SortFindings(fs []Finding) {
+	sort.SliceStable(fs, func(i, j int) bool {
+		a, b := severityRank(fs[i].Severity), severityRank(fs[j].Severity)
+		if a != b {
+			return a < b
+		}
+		return fs[i].ChainageFrom < fs[j].ChainageFrom
+	})
+}
+
+func severityRank(s string) int {
+	switch s {
+	case SeverityWarning:
+		return 0
+	case SeverityCaution:
+		return 1
+	}
+	return 2
+}

@@ -1,0 +1,196 @@
+package report
+
+import (
+	"bytes"
+	"encoding/json"
+	"fmt"
+	"io"
+)
+
+// GeoJSON frame markers, in the top-level "coordinate_frame" member.
+const (
+	GeoJSONWGS84 = "wgs84"
+	GeoJSONLocal = "local-enu"
+)
+
+// WriteGeoJSON writes the route, the conductors and the findings as an
+// RFC 7946 FeatureCollection.
+//
+// When the document has a geodetic origin, positions are converted from
+// local east, north, up to WGS84 longitude and latitude (in that order, as
+// RFC 7946 section 3.1.1 requires) and the top-level member
+// "coordinate_frame" is "wgs84". Otherwise RFC 7946's requirement of WGS84
+// cannot be met: positions are written as local [east, north] metres,
+// "coordinate_frame" is "local-enu" and "coordinate_note" says so in words,
+// so that nobody takes them for longitudes and latitudes.
+//
+// Features, each with a "feature" property naming what it is:
+//
+//   - "route": a LineString through the route's stations (when there is a
+//     route), with length_m;
+//   - "conductor": one per line source, a LineString over the stretch the
+//     readings see (a Point when that is unknown), with the group key,
+//     current, depth and their sigmas;
+//   - "object": one Point per dipole source;
+//   - "finding": one Point per finding at its position, with kind,
+//     severity, chainage range and message.
+func WriteGeoJSON(w io.Writer, d *Document) error {
+	if err := d.Validate(); err != nil {
+		return err
+	}
+	fc := featureCollection{Type: "FeatureCollection", Features: []feature{}}
+	if d.Frame.Origin != nil {
+		fc.Frame = GeoJSONWGS84
+		o := *d.Frame.Origin
+		fc.Origin = &o
+	} else {
+		fc.Frame = GeoJSONLocal
+		fc.Note = "Coordinates are metres east and north of a local origin, not WGS84 longitude and latitude: " +
+			"the survey had no geodetic positions. RFC 7946 requires WGS84, so GIS software will misplace " +
+			"these features unless told the frame."
+	}
+	if r := d.Route; r != nil && len(r.Stations) > 1 {
+		pts := make([][3]float64, len(r.Stations))
+		for i, s := range r.Stations {
+			pts[i] = s.Point
+		}
+		fc.Features = append(fc.Features, feature{
+			Type:     "Feature",
+			Geometry: d.line(pts),
+			Properties: map[string]any{
+				"feature":  "route",
+				"length_m": round(r.Length, 3),
+				"stations": len(r.Stations),
+			},
+		})
+	}
+	for _, g := range d.Groups {
+		for i, s := range g.Sources {
+			props := map[string]any{
+				"group":         g.Key,
+				"source":        i + 1,
+				"depth_m":       round(s.Depth, 3),
+				"depth_sigma_m": round(s.DepthSigma, 3),
+				"ok":            g.OK,
+			}
+			if g.Chainage != nil {
+				props["chainage_m"] = round(*g.Chainage, 3)
+			}
+			if c, ok := d.cover(s.Depth); ok {
+				props["cover_m"] = round(c, 3)
+			}
+			var geom geometry
+			if s.Kind == KindDipole {
+				props["feature"] = "object"
+				geom = d.point(s.Point)
+			} else {
+				props["feature"] = "conductor"
+				props["current_a"] = round(s.Current, 4)
+				props["current_sigma_a"] = round(s.CurrentSigma, 4)
+				props["azimuth_deg"] = round(s.Azimuth, 2)
+				if s.Phase != nil {
+					props["phase_deg"] = round(*s.Phase, 2)
+				}
+				geom = d.point(s.Point)
+				if s.Span[1] > s.Span[0] {
+					a, b := along(s.Point, s.Direction, s.Span[0]), along(s.Point, s.Direction, s.Span[1])
+					geom = d.line([][3]float64{a, b})
+				}
+			}
+			fc.Features = append(fc.Features, feature{Type: "Feature", Geometry: geom, Properties: props})
+		}
+	}
+	for _, f := range d.Findings {
+		props := map[string]any{
+			"feature":         "finding",
+			"kind":            f.Kind,
+			"severity":        f.Severity,
+			"chainage_from_m": round(f.ChainageFrom, 3),
+			"chainage_to_m":   round(f.ChainageTo, 3),
+			"message":         f.Message,
+		}
+		if len(f.Groups) > 0 {
+			props["groups"] = f.Groups
+		}
+		fc.Features = append(fc.Features, feature{Type: "Feature", Geometry: d.point(f.Position), Properties: props})
+	}
+	// One feature per line: compact, and readable in a diff.
+	var buf bytes.Buffer
+	buf.WriteString(`{"type":"FeatureCollection",`)
+	head, err := json.Marshal(struct {
+		Frame  string  `json:"coordinate_frame"`
+		Note   string  `json:"coordinate_note,omitempty"`
+		Origin *Origin `json:"local_origin,omitempty"`
+	}{fc.Frame, fc.Note, fc.Origin})
+	if err != nil {
+		return fmt.Errorf("report: GeoJSON: %w", err)
+	}
+	buf.Write(head[1 : len(head)-1])
+	buf.WriteString(",\n\"features\":[")
+	for i, f := range fc.Features {
+		if i > 0 {
+			buf.WriteByte(',')
+		}
+		b, err := json.Marshal(f)
+		if err != nil {
+			return fmt.Errorf("report: GeoJSON: %w", err)
+		}
+		buf.WriteString("\n")
+		buf.Write(b)
+	}
+	buf.WriteString("\n]}\n")
+	if _, err := w.Write(buf.Bytes()); err != nil {
+		return fmt.Errorf("report: writing GeoJSON: %w", err)
+	}
+	return nil
+}
+
+type featureCollection struct {
+	Type     string    `json:"type"`
+	Frame    string    `json:"coordinate_frame"`
+	Note     string    `json:"coordinate_note,omitempty"`
+	Origin   *Origin   `json:"local_origin,omitempty"`
+	Features []feature `json:"features"`
+}
+
+type feature struct {
+	Type       string         `json:"type"`
+	Geometry   geometry       `json:"geometry"`
+	Properties map[string]any `json:"properties"`
+}
+
+type geometry struct {
+	Type        string          `json:"type"`
+	Coordinates json.RawMessage `json:"coordinates"`
+}
+
+// position formats one GeoJSON position: [lon, lat] to 1e-8 degree (about
+// a millimetre) with an origin, else [east, north] to the millimetre.
+func (d *Document) position(p [3]float64) string {
+	if lon, lat, ok := d.wgs84(p); ok {
+		return "[" + fix(lon, 8) + "," + fix(lat, 8) + "]"
+	}
+	return "[" + fix(p[0], 3) + "," + fix(p[1], 3) + "]"
+}
+
+func (d *Document) point(p [3]float64) geometry {
+	return geometry{Type: "Point", Coordinates: json.RawMessage(d.position(p))}
+}
+
+func (d *Document) line(pts [][3]float64) geometry {
+	b := []byte{'['}
+	for i, p := range pts {
+		if i > 0 {
+			b = append(b, ',')
+		}
+		b = append(b, d.position(p)...)
+	}
+	return geometry{Type: "LineString", Coordinates: json.RawMessage(append(b, ']'))}
+}
+
+func along(p, dir [3]float64, t float64) [3]float64 {
+	return [3]float64{p[0] + t*dir[0], p[1] + t*dir[1], p[2] + t*dir[2]}
+}
+
+// round returns v rounded to prec decimals as a JSON number.
+func round(v float64, prec int) json.Number { return json.Number(fix(v, prec)) }

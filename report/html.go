@@ -1,0 +1,433 @@
+package report
+
+import (
+	"fmt"
+	"html/template"
+	"io"
+	"math"
+	"sort"
+	"strings"
+
+	"gonum.org/v1/plot/vg"
+)
+
+// MaxProfilePlots is the number of groups whose measured and fitted field
+// the crew report plots.
+const MaxProfilePlots = 3
+
+// WriteHTML writes the crew report: one self-contained HTML page (no
+// scripts, no external files) that opens offline and prints on A4 or
+// Letter. It holds, in order: the cautions; a summary a crew lead reads in a
+// minute (what was found, where, how sure) with the findings; a plan view of
+// the fitted route over the readings; current and depth along the route
+// with ±2σ bars, the ground and the minimum-cover line; measured against
+// fitted field for up to MaxProfilePlots groups (those with findings first);
+// a table of every group; and the inputs, corrections, frame and settings.
+// Plots are drawn with gonum.org/v1/plot and embedded as inline SVG.
+func WriteHTML(w io.Writer, d *Document) error {
+	if err := d.Validate(); err != nil {
+		return err
+	}
+	v, err := newView(d)
+	if err != nil {
+		return err
+	}
+	if err := crewTemplate.Execute(w, v); err != nil {
+		return fmt.Errorf("report: writing HTML: %w", err)
+	}
+	return nil
+}
+
+type view struct {
+	D          *Document
+	Title      string
+	Headline   []string
+	HowSure    string
+	Counts     string
+	Findings   []findingRow
+	Cautions   []string
+	Plan       template.HTML
+	Current    template.HTML
+	Depth      template.HTML
+	DepthNote  string
+	Profiles   []template.HTML
+	Groups     []groupRow
+	DepthRef   string
+	FrameText  string
+	SignalText string
+	Settings   [][2]string
+}
+
+type findingRow struct {
+	N        int
+	Severity string
+	Kind     string
+	Where    string
+	Message  string
+	Values   string
+}
+
+type groupRow struct {
+	Key, Chainage, Current, Phase, Depth, Cover, Azimuth, RMS, Points, Status string
+	Bad                                                                       bool
+}
+
+func newView(d *Document) (*view, error) {
+	v := &view{D: d, Cautions: Cautions}
+	v.Title = d.Title
+	if v.Title == "" {
+		v.Title = "Buried conductor estimate"
+	}
+	v.DepthRef = depthRefText(d)
+	v.FrameText = "local east, north, up, metres"
+	if o := d.Frame.Origin; o != nil {
+		v.FrameText += fmt.Sprintf("; origin at WGS84 %.7f°, %.7f°, %.2f m", o.Lat, o.Lon, o.H)
+	} else {
+		v.FrameText += "; not geo-referenced"
+	}
+	v.SignalText = "DC field"
+	if d.Signal.Mode == SignalAC {
+		v.SignalText = fmt.Sprintf("AC at %g Hz, %g s windows; currents are RMS", d.Signal.FrequencyHz, d.Signal.WindowS)
+	}
+	keys := make([]string, 0, len(d.Settings))
+	for k := range d.Settings {
+		keys = append(keys, k)
+	}
+	sort.Strings(keys)
+	for _, k := range keys {
+		v.Settings = append(v.Settings, [2]string{k, d.Settings[k]})
+	}
+	v.summarise()
+	for i, f := range d.Findings {
+		var vals []string
+		for _, x := range f.Values {
+			vals = append(vals, valueText(x))
+		}
+		v.Findings = append(v.Findings, findingRow{
+			N: i + 1, Severity: f.Severity, Kind: strings.ReplaceAll(f.Kind, "-", " "),
+			Where: v.where(f), Message: f.Message, Values: strings.Join(vals, "; "),
+		})
+	}
+	for i := range d.Groups {
+		v.Groups = append(v.Groups, v.groupRow(&d.Groups[i]))
+	}
+	if err := v.plots(); err != nil {
+		return nil, err
+	}
+	return v, nil
+}
+
+func depthRefText(d *Document) string {
+	if d.DepthReference.Kind == DepthBelowGround {
+		return fmt.Sprintf("below the ground surface given (up = %.2f m)", d.DepthReference.Z)
+	}
+	s := fmt.Sprintf("below the sensors' mean height (up = %.2f m)", d.DepthReference.Z)
+	if h := d.DepthReference.SensorHeight; h > 0 {
+		s += fmt.Sprintf("; sensors %.2f m above ground, so cover = depth − %.2f m", h, h)
+	} else {
+		s += "; sensor height above ground not given, so cover is not computed"
+	}
+	return s
+}
+
+func valueText(x Value) string {
+	s := x.Name + " " + num(x.Value)
+	if x.Sigma > 0 {
+		s += " ± " + num(x.Sigma)
+	}
+	if x.Unit != "" {
+		s += " " + x.Unit
+	}
+	return s
+}
+
+// num formats a value with about three significant digits.
+func num(v float64) string {
+	a := math.Abs(v)
+	switch {
+	case a == 0:
+		return "0"
+	case a >= 100:
+		return fmt.Sprintf("%.0f", v)
+	case a >= 10:
+		return fmt.Sprintf("%.1f", v)
+	case a >= 1:
+		return fmt.Sprintf("%.2f", v)
+	case a >= 0.01:
+		return fmt.Sprintf("%.3f", v)
+	}
+	return fmt.Sprintf("%.2g", v)
+}
+
+func (v *view) where(f Finding) string {
+	var parts []string
+	if v.D.Route != nil {
+		if f.ChainageTo > f.ChainageFrom {
+			parts = append(parts, fmt.Sprintf("chainage %.0f–%.0f m", f.ChainageFrom, f.ChainageTo))
+		} else {
+			parts = append(parts, fmt.Sprintf("chainage %.0f m", f.ChainageFrom))
+		}
+	}
+	parts = append(parts, fmt.Sprintf("E %.1f N %.1f", f.Position[0], f.Position[1]))
+	if lon, lat, ok := v.D.wgs84(f.Position); ok {
+		parts = append(parts, fmt.Sprintf("%.6f°, %.6f°", lat, lon))
+	}
+	if len(f.Groups) > 0 {
+		parts = append(parts, "groups "+strings.Join(f.Groups, ", "))
+	}
+	return strings.Join(parts, " · ")
+}
+
+func (v *view) groupRow(g *Group) groupRow {
+	r := groupRow{Key: g.Key, Points: fmt.Sprint(g.Points), RMS: num(g.RMS), Bad: !g.OK || g.Problem != ""}
+	if r.Key == "" {
+		r.Key = "(all)"
+	}
+	if g.Chainage != nil {
+		r.Chainage = fmt.Sprintf("%.1f", *g.Chainage)
+	}
+	r.Status = "ok"
+	if !g.OK {
+		r.Status = "failed"
+	}
+	if g.Problem != "" {
+		r.Status += ": " + g.Problem
+	}
+	var cur, ph, dep, cov, az []string
+	for _, s := range g.Sources {
+		if s.Kind == KindDipole {
+			cur = append(cur, "object")
+			dep = append(dep, num(s.Depth)+" ± "+num(s.DepthSigma))
+			continue
+		}
+		cur = append(cur, num(s.Current)+" ± "+num(s.CurrentSigma))
+		if s.Phase != nil {
+			p := fmt.Sprintf("%.1f", *s.Phase)
+			if s.PhaseSigma != nil {
+				p += fmt.Sprintf(" ± %.1f", *s.PhaseSigma)
+			}
+			ph = append(ph, p)
+		}
+		dep = append(dep, num(s.Depth)+" ± "+num(s.DepthSigma))
+		if c, ok := v.D.cover(s.Depth); ok {
+			cov = append(cov, num(c))
+		}
+		az = append(az, fmt.Sprintf("%.1f ± %.1f", s.Azimuth, s.AzimuthSigma))
+	}
+	r.Current, r.Phase = strings.Join(cur, "; "), strings.Join(ph, "; ")
+	r.Depth, r.Cover, r.Azimuth = strings.Join(dep, "; "), strings.Join(cov, "; "), strings.Join(az, "; ")
+	return r
+}
+
+// summarise writes the few sentences a crew lead reads first.
+func (v *view) summarise() {
+	d := v.D
+	ok := 0
+	for _, g := range d.Groups {
+		if g.OK {
+			ok++
+		}
+	}
+	var warn, caut, info int
+	for _, f := range d.Findings {
+		switch f.Severity {
+		case SeverityWarning:
+			warn++
+		case SeverityCaution:
+			caut++
+		default:
+			info++
+		}
+	}
+	switch {
+	case warn+caut+info == 0:
+		v.Counts = "No findings: nothing in these estimates calls for action beyond the cautions."
+	default:
+		v.Counts = fmt.Sprintf("%s, %s and %s (listed below, most pressing first).",
+			plural(warn, "warning"), plural(caut, "caution"), plural(info, "note"))
+	}
+	var curSig, curRel, depSig []float64
+	if r := d.Route; r != nil && len(r.Stations) > 1 {
+		var used []Station
+		for _, s := range r.Stations {
+			if s.Used {
+				used = append(used, s)
+			}
+		}
+		v.Headline = append(v.Headline, fmt.Sprintf("A conductor was traced for %.0f m along the route, fitted in %d of %d groups.",
+			r.Length, ok, len(d.Groups)))
+		if len(used) > 0 {
+			a, b := used[0], used[len(used)-1]
+			v.Headline = append(v.Headline, fmt.Sprintf("Current is %s ± %s A at chainage %.0f m and %s ± %s A at %.0f m.",
+				num(a.Current), num(a.CurrentSigma), a.Chainage, num(b.Current), num(b.CurrentSigma), b.Chainage))
+			lo, hi := used[0], used[0]
+			for _, s := range used {
+				if s.Depth < lo.Depth {
+					lo = s
+				}
+				if s.Depth > hi.Depth {
+					hi = s
+				}
+				curSig = append(curSig, s.CurrentSigma)
+				if s.Current != 0 {
+					curRel = append(curRel, s.CurrentSigma/math.Abs(s.Current))
+				}
+				depSig = append(depSig, s.DepthSigma)
+			}
+			line := fmt.Sprintf("Depth %s is %s to %s m (shallowest at chainage %.0f m)",
+				shortRef(d), num(lo.Depth), num(hi.Depth), lo.Chainage)
+			if c, ok := d.cover(lo.Depth); ok {
+				line += fmt.Sprintf("; least cover %s ± %s m", num(c), num(lo.DepthSigma))
+			}
+			v.Headline = append(v.Headline, line+".")
+		}
+	} else {
+		for _, g := range d.Groups {
+			for i, s := range g.Sources {
+				if s.Kind == KindDipole {
+					v.Headline = append(v.Headline, fmt.Sprintf("Source %d is a magnetised object, not a current, at E %.1f N %.1f, %s m %s.",
+						i+1, s.Point[0], s.Point[1], num(s.Depth), shortRef(d)))
+					continue
+				}
+				line := fmt.Sprintf("Conductor %d: %s ± %s A", i+1, num(s.Current), num(s.CurrentSigma))
+				if s.Phase != nil {
+					line += fmt.Sprintf(" RMS at %.0f°", *s.Phase)
+				}
+				line += fmt.Sprintf(", depth %s ± %s m %s, running %.0f° from north, passing E %.1f N %.1f.",
+					num(s.Depth), num(s.DepthSigma), shortRef(d), s.Azimuth, s.Point[0], s.Point[1])
+				v.Headline = append(v.Headline, line)
+				curSig = append(curSig, s.CurrentSigma)
+				if s.Current != 0 {
+					curRel = append(curRel, s.CurrentSigma/math.Abs(s.Current))
+				}
+				depSig = append(depSig, s.DepthSigma)
+			}
+		}
+		if len(v.Headline) == 0 {
+			v.Headline = append(v.Headline, "No conductor was found in these readings.")
+		}
+	}
+	if len(curSig) > 0 {
+		v.HowSure = fmt.Sprintf("Typical uncertainty (one standard deviation, median over the fits): current ± %s A (%.1f %%), depth ± %s m. Plots show ± two standard deviations.",
+			num(median(curSig)), 100*median(curRel), num(median(depSig)))
+	}
+	if ok < len(d.Groups) {
+		v.HowSure += fmt.Sprintf(" %d of %d fits failed and are not used.", len(d.Groups)-ok, len(d.Groups))
+	}
+}
+
+func shortRef(d *Document) string {
+	if d.DepthReference.Kind == DepthBelowGround {
+		return "below ground"
+	}
+	return "below the sensors"
+}
+
+func plural(n int, word string) string {
+	if n == 1 {
+		return "1 " + word
+	}
+	return fmt.Sprintf("%d %ss", n, word)
+}
+
+func median(x []float64) float64 {
+	if len(x) == 0 {
+		return 0
+	}
+	s := append([]float64(nil), x...)
+	sort.Float64s(s)
+	n := len(s)
+	if n%2 == 1 {
+		return s[n/2]
+	}
+	return (s[n/2-1] + s[n/2]) / 2
+}
+
+// plots renders the figures.
+func (v *view) plots() error {
+	d := v.D
+	var err error
+	p, err := planPlot(d)
+	if err != nil {
+		return fmt.Errorf("report: plan view: %w", err)
+	}
+	if v.Plan, err = svg(p, 16*vg.Centimeter, 16*vg.Centimeter, "plan view of readings, fitted route and findings"); err != nil {
+		return err
+	}
+	if d.Route != nil && len(d.Route.Stations) > 1 {
+		p, err := alongPlot(d, "current")
+		if err != nil {
+			return fmt.Errorf("report: current plot: %w", err)
+		}
+		if v.Current, err = svg(p, 20*vg.Centimeter, 8.5*vg.Centimeter, "current along the route"); err != nil {
+			return err
+		}
+		p, err = alongPlot(d, "depth")
+		if err != nil {
+			return fmt.Errorf("report: depth plot: %w", err)
+		}
+		if v.Depth, err = svg(p, 20*vg.Centimeter, 8.5*vg.Centimeter, "depth along the route"); err != nil {
+			return err
+		}
+		if _, ok := groundDepth(d); !ok {
+			v.DepthNote = "The ground and the minimum-cover line are not drawn: the sensors' height above ground was not given."
+		} else if d.MinCover == nil {
+			v.DepthNote = "No minimum cover was given, so none is drawn or checked."
+		}
+	}
+	for _, g := range profileGroups(d) {
+		p, err := profilePlot(d, g)
+		if err != nil {
+			return fmt.Errorf("report: profile of group %q: %w", g.Key, err)
+		}
+		s, err := svg(p, 20*vg.Centimeter, 8*vg.Centimeter, "measured and fitted field, group "+g.Key)
+		if err != nil {
+			return err
+		}
+		v.Profiles = append(v.Profiles, s)
+	}
+	return nil
+}
+
+// profileGroups picks up to MaxProfilePlots groups with profiles: groups
+// named in findings first (most pressing first), then the first, middle
+// and last groups.
+func profileGroups(d *Document) []*Group {
+	byKey := map[string]*Group{}
+	var with []*Group
+	for i := range d.Groups {
+		g := &d.Groups[i]
+		if g.Profile != nil && len(g.Profile.Offset) > 0 {
+			with = append(with, g)
+			if _, dup := byKey[g.Key]; !dup {
+				byKey[g.Key] = g
+			}
+		}
+	}
+	var out []*Group
+	seen := map[*Group]bool{}
+	add := func(g *Group) {
+		if g != nil && !seen[g] && len(out) < MaxProfilePlots {
+			seen[g] = true
+			out = append(out, g)
+		}
+	}
+	for _, f := range d.Findings {
+		if f.Severity == SeverityInfo {
+			continue
+		}
+		for _, k := range f.Groups {
+			add(byKey[k])
+		}
+	}
+	if n := len(with); n > 0 {
+		add(with[0])
+		add(with[n/2])
+		add(with[n-1])
+	}
+	sort.SliceStable(out, func(i, j int) bool {
+		a, b := out[i].Chainage, out[j].Chainage
+		return a != nil && b != nil && *a < *b
+	})
+	return out
+}

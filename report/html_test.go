@@ -1,0 +1,89 @@
+package report
+
+import (
+	"bytes"
+	"os"
+	"regexp"
+	"strings"
+	"testing"
+)
+
+// TestHTML checks the crew report as a reader would get it: the cautions
+// verbatim, plots as inline SVG, nothing fetched from anywhere. Set
+// UNDERCURRENT_HTML_OUT to a file name to keep the page for a look in a
+// browser.
+func TestHTML(t *testing.T) {
+	for _, geo := range []bool{false, true} {
+		d := fenwickLane(geo)
+		var buf bytes.Buffer
+		if err := WriteHTML(&buf, d); err != nil {
+			t.Fatal(err)
+		}
+		page := buf.String()
+		if out := os.Getenv("UNDERCURRENT_HTML_OUT"); out != "" && geo {
+			if err := os.WriteFile(out, buf.Bytes(), 0o644); err != nil {
+				t.Fatal(err)
+			}
+		}
+		for _, c := range Cautions {
+			if !strings.Contains(page, c) {
+				t.Errorf("page lacks the caution %q", c)
+			}
+		}
+		// Plan view, current, depth and three profiles.
+		if n := strings.Count(page, "<svg"); n != 6 {
+			t.Errorf("page has %d <svg> elements, want 6", n)
+		}
+		if strings.Contains(page, "<?xml") {
+			t.Error("page has an XML prolog inside the HTML")
+		}
+		for _, bad := range []string{"<script", "<link", "<img", "@import", "url("} {
+			if strings.Contains(page, bad) {
+				t.Errorf("page contains %q: it must be self-contained", bad)
+			}
+		}
+		// Only the SVG namespace may look like a URL.
+		for _, u := range regexp.MustCompile(`https?://[^"' )]+`).FindAllString(page, -1) {
+			if u != "http://www.w3.org/2000/svg" && u != "http://www.w3.org/1999/xlink" {
+				t.Errorf("page refers to %s", u)
+			}
+		}
+		for _, want := range []string{
+			"Fenwick Lane cable route", "Harrow Fen substation",
+			"hard iron (12.1, -8.4, 30.2) nT removed", // calibration applied
+			"diurnal departure removed",               // base station
+			"NEC Table 300.5",                         // minimum cover named
+			"current leaving the conductor",           // the step finding
+			"T07", "T08",
+			"minimum cover 0.60 m", // line on the depth plot
+		} {
+			if !strings.Contains(page, want) {
+				t.Errorf("page lacks %q", want)
+			}
+		}
+		if geo && !strings.Contains(page, "52.4719") {
+			t.Error("geo-referenced page lacks the origin")
+		}
+	}
+}
+
+// A single ungrouped fit has no route: the page still says what was found
+// and plots the plan view and the one profile.
+func TestHTMLSingleGroup(t *testing.T) {
+	full := fenwickLane(false)
+	g := full.Groups[0]
+	g.Key, g.Chainage = "", nil
+	d := &Document{SchemaVersion: SchemaVersion, Tool: full.Tool, Frame: Frame{Kind: FrameLocalENU},
+		DepthReference: DepthReference{Kind: DepthBelowSensors}, Signal: Signal{Mode: SignalDC}, Groups: []Group{g}}
+	var buf bytes.Buffer
+	if err := WriteHTML(&buf, d); err != nil {
+		t.Fatal(err)
+	}
+	page := buf.String()
+	if n := strings.Count(page, "<svg"); n != 2 {
+		t.Errorf("page has %d <svg> elements, want 2 (plan and profile)", n)
+	}
+	if !strings.Contains(page, "Conductor 1: 83.7 ± 0.600 A") || !strings.Contains(page, "No findings") {
+		t.Errorf("summary does not state the conductor:\n%s", page[strings.Index(page, "<h2>Summary"):][:600])
+	}
+}

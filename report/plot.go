@@ -1,0 +1,419 @@
+package report
+
+import (
+	"bytes"
+	"fmt"
+	"html/template"
+	"image/color"
+	"math"
+	"regexp"
+	"strings"
+
+	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/plotter"
+	"gonum.org/v1/plot/vg"
+	"gonum.org/v1/plot/vg/draw"
+	"gonum.org/v1/plot/vg/vgsvg"
+)
+
+// The report's palette: neutral inks, one blue-green for fitted results,
+// and three muted hues for the field components. Severity colours match the
+// HTML.
+var (
+	colInk     = color.RGBA{0x1f, 0x29, 0x33, 0xff}
+	colSurvey  = color.RGBA{0x9a, 0xa5, 0xb1, 0xff}
+	colFit     = color.RGBA{0x1b, 0x6f, 0x8a, 0xff}
+	colEast    = color.RGBA{0x1b, 0x6f, 0x8a, 0xff}
+	colNorth   = color.RGBA{0x7a, 0x4e, 0x9c, 0xff}
+	colUp      = color.RGBA{0xb5, 0x65, 0x1d, 0xff}
+	colWarning = color.RGBA{0xb3, 0x26, 0x1e, 0xff}
+	colCaution = color.RGBA{0xc9, 0x8a, 0x00, 0xff}
+	colInfo    = color.RGBA{0x5f, 0x6b, 0x7a, 0xff}
+	colGround  = color.RGBA{0x6b, 0x4f, 0x2a, 0xff}
+)
+
+func severityColour(s string) color.Color {
+	switch s {
+	case SeverityWarning:
+		return colWarning
+	case SeverityCaution:
+		return colCaution
+	}
+	return colInfo
+}
+
+// newPlot returns a plot with sans-serif text in the report's ink.
+func newPlot(title, xlabel, ylabel string) *plot.Plot {
+	p := plot.New()
+	p.Title.Text = title
+	p.X.Label.Text = xlabel
+	p.Y.Label.Text = ylabel
+	for _, st := range []*plot.Axis{&p.X, &p.Y} {
+		st.Label.TextStyle.Font.Variant = "Sans"
+		st.Label.TextStyle.Font.Size = vg.Points(10)
+		st.Tick.Label.Font.Variant = "Sans"
+		st.Tick.Label.Font.Size = vg.Points(9)
+		st.Color = colInk
+		st.Label.TextStyle.Color = colInk
+		st.Tick.Label.Color = colInk
+		st.Tick.Color = colInk
+	}
+	p.Title.TextStyle.Font.Variant = "Sans"
+	p.Title.TextStyle.Font.Size = vg.Points(11)
+	p.Title.TextStyle.Color = colInk
+	p.Legend.TextStyle.Font.Variant = "Sans"
+	p.Legend.TextStyle.Font.Size = vg.Points(9)
+	p.Legend.Top = true
+	grid := plotter.NewGrid()
+	grid.Vertical.Color = color.RGBA{0xe4, 0xe7, 0xeb, 0xff}
+	grid.Horizontal.Color = grid.Vertical.Color
+	p.Add(grid)
+	return p
+}
+
+var (
+	svgProlog = regexp.MustCompile(`(?s)^<\?xml[^>]*\?>\s*(<!--.*?-->\s*)?`)
+	svgSize   = regexp.MustCompile(`^<svg width="([0-9.]+)pt" height="([0-9.]+)pt"`)
+)
+
+// svg renders p at w x h and returns inline SVG markup for the HTML report:
+// no XML prolog, sizes that scale with the page, and a font list that falls
+// back to the reader's sans-serif when Liberation Sans is absent.
+func svg(p *plot.Plot, w, h vg.Length, label string) (template.HTML, error) {
+	c := vgsvg.New(w, h)
+	p.Draw(draw.New(c))
+	var buf bytes.Buffer
+	if _, err := c.WriteTo(&buf); err != nil {
+		return "", fmt.Errorf("report: rendering %s: %w", label, err)
+	}
+	s := svgProlog.ReplaceAllString(buf.String(), "")
+	s = svgSize.ReplaceAllString(s, `<svg role="img" aria-label="`+template.HTMLEscapeString(label)+`" style="width:100%;max-width:${1}pt;height:auto"`)
+	s = strings.ReplaceAll(s, "font-family:Liberation Sans;", "font-family:'Liberation Sans',Arial,Helvetica,sans-serif;")
+	return template.HTML(s), nil // markup produced by vgsvg, not user text
+}
+
+// xy is a plotter.XYer over two slices.
+type xy struct{ x, y []float64 }
+
+func (d xy) Len() int                    { return len(d.x) }
+func (d xy) XY(i int) (float64, float64) { return d.x[i], d.y[i] }
+
+// xyErr adds symmetric y errors.
+type xyErr struct {
+	xy
+	e []float64
+}
+
+func (d xyErr) YError(i int) (float64, float64) { return d.e[i], d.e[i] }
+
+// scatter adds points with the given glyph and colour and returns them.
+func scatter(p *plot.Plot, d xy, shape draw.GlyphDrawer, c color.Color, radius vg.Length) (*plotter.Scatter, error) {
+	if d.Len() == 0 {
+		return nil, nil
+	}
+	s, err := plotter.NewScatter(d)
+	if err != nil {
+		return nil, err
+	}
+	s.GlyphStyle = draw.GlyphStyle{Color: c, Radius: radius, Shape: shape}
+	p.Add(s)
+	return s, nil
+}
+
+// polyline adds a line and returns it.
+func polyline(p *plot.Plot, d xy, c color.Color, width vg.Length, dashes ...vg.Length) (*plotter.Line, error) {
+	if d.Len() < 2 {
+		return nil, nil
+	}
+	l, err := plotter.NewLine(d)
+	if err != nil {
+		return nil, err
+	}
+	l.LineStyle = draw.LineStyle{Color: c, Width: width, Dashes: dashes}
+	p.Add(l)
+	return l, nil
+}
+
+// planPlot is the plan view: survey points, the fitted route and
+// conductors, and numbered findings.
+func planPlot(d *Document) (*plot.Plot, error) {
+	p := newPlot("", "east (m)", "north (m)")
+	var sx, sy []float64
+	for _, g := range d.Groups {
+		if g.Profile == nil {
+			continue
+		}
+		for _, q := range g.Profile.Positions {
+			sx, sy = append(sx, q[0]), append(sy, q[1])
+		}
+	}
+	s, err := scatter(p, xy{sx, sy}, draw.CircleGlyph{}, colSurvey, 1.2)
+	if err != nil {
+		return nil, err
+	}
+	if s != nil {
+		p.Legend.Add("readings", s)
+	}
+	// Conductors over the stretch each group's readings see.
+	var shown bool
+	for _, g := range d.Groups {
+		for _, src := range g.Sources {
+			if src.Kind == KindDipole {
+				if _, err := scatter(p, xy{[]float64{src.Point[0]}, []float64{src.Point[1]}}, draw.BoxGlyph{}, colInfo, 3.5); err != nil {
+					return nil, err
+				}
+				continue
+			}
+			a, b := along(src.Point, src.Direction, src.Span[0]), along(src.Point, src.Direction, src.Span[1])
+			if src.Span[1] <= src.Span[0] {
+				a, b = along(src.Point, src.Direction, -1), along(src.Point, src.Direction, 1)
+			}
+			l, err := polyline(p, xy{[]float64{a[0], b[0]}, []float64{a[1], b[1]}}, colFit, 1.2)
+			if err != nil {
+				return nil, err
+			}
+			if l != nil && !shown {
+				p.Legend.Add("fitted conductor", l)
+				shown = true
+			}
+		}
+	}
+	if r := d.Route; r != nil && len(r.Stations) > 1 {
+		var rx, ry []float64
+		for _, st := range r.Stations {
+			rx, ry = append(rx, st.Point[0]), append(ry, st.Point[1])
+		}
+		l, err := polyline(p, xy{rx, ry}, colFit, 2.2)
+		if err != nil {
+			return nil, err
+		}
+		p.Legend.Add("fitted route", l)
+		if _, err := scatter(p, xy{rx, ry}, draw.CircleGlyph{}, colFit, 2.2); err != nil {
+			return nil, err
+		}
+	}
+	if err := addFindingMarks(p, d); err != nil {
+		return nil, err
+	}
+	squareUp(p)
+	return p, nil
+}
+
+// addFindingMarks numbers the findings on the plan view.
+func addFindingMarks(p *plot.Plot, d *Document) error {
+	if len(d.Findings) == 0 {
+		return nil
+	}
+	var lx, ly []float64
+	var labels []string
+	for i, f := range d.Findings {
+		c := severityColour(f.Severity)
+		if _, err := scatter(p, xy{[]float64{f.Position[0]}, []float64{f.Position[1]}}, draw.TriangleGlyph{}, c, 4); err != nil {
+			return err
+		}
+		lx, ly = append(lx, f.Position[0]), append(ly, f.Position[1])
+		labels = append(labels, fmt.Sprintf(" %d", i+1))
+	}
+	lab, err := plotter.NewLabels(plotter.XYLabels{XYs: xy{lx, ly}.toXYs(), Labels: labels})
+	if err != nil {
+		return err
+	}
+	for i := range lab.TextStyle {
+		lab.TextStyle[i].Font.Variant = "Sans"
+		lab.TextStyle[i].Font.Size = vg.Points(9)
+		lab.TextStyle[i].Color = colInk
+	}
+	lab.Offset = vg.Point{X: 3, Y: 3}
+	p.Add(lab)
+	return nil
+}
+
+func (d xy) toXYs() plotter.XYs {
+	out := make(plotter.XYs, len(d.x))
+	for i := range d.x {
+		out[i].X, out[i].Y = d.x[i], d.y[i]
+	}
+	return out
+}
+
+// squareUp widens the shorter axis range so that a metre east and a metre
+// north are about the same length on a square plot.
+func squareUp(p *plot.Plot) {
+	cx, cy := (p.X.Min+p.X.Max)/2, (p.Y.Min+p.Y.Max)/2
+	half := math.Max(p.X.Max-p.X.Min, p.Y.Max-p.Y.Min)/2*1.08 + 0.5
+	p.X.Min, p.X.Max = cx-half, cx+half
+	p.Y.Min, p.Y.Max = cy-half, cy+half
+}
+
+// alongPlot plots current (which = "current") or depth along the route
+// with +-2 sigma bars; the depth plot has the ground and minimum-cover
+// lines when they are known.
+func alongPlot(d *Document, which string) (*plot.Plot, error) {
+	r := d.Route
+	var x, y, e, ux, uy []float64
+	for _, st := range r.Stations {
+		v, s := st.Current, st.CurrentSigma
+		if which == "depth" {
+			v, s = st.Depth, st.DepthSigma
+		}
+		if !st.Used {
+			ux, uy = append(ux, st.Chainage), append(uy, v)
+			continue
+		}
+		x, y, e = append(x, st.Chainage), append(y, v), append(e, 2*s)
+	}
+	title, ylabel := "Current along the route", "current (A)"
+	if d.Signal.Mode == SignalAC {
+		ylabel = "current, RMS (A)"
+	}
+	if which == "depth" {
+		title = "Depth along the route"
+		ylabel = "depth below " + depthRefShort(d) + " (m)"
+	}
+	p := newPlot(title, "chainage (m)", ylabel)
+	if which == "depth" {
+		p.Y.Scale = plot.InvertedScale{Normalizer: plot.LinearScale{}}
+	}
+	if len(x) > 0 {
+		eb, err := plotter.NewYErrorBars(xyErr{xy{x, y}, e})
+		if err != nil {
+			return nil, err
+		}
+		eb.LineStyle.Color = colFit
+		eb.LineStyle.Width = 1
+		p.Add(eb)
+		if _, err := polyline(p, xy{x, y}, colFit, 1); err != nil {
+			return nil, err
+		}
+		s, err := scatter(p, xy{x, y}, draw.CircleGlyph{}, colFit, 2.5)
+		if err != nil {
+			return nil, err
+		}
+		p.Legend.Add("estimate, ±2σ", s)
+	}
+	if len(ux) > 0 {
+		s, err := scatter(p, xy{ux, uy}, draw.RingGlyph{}, colSurvey, 3)
+		if err != nil {
+			return nil, err
+		}
+		p.Legend.Add("not used (poor fit or object)", s)
+	}
+	x0, x1 := 0.0, r.Length
+	if which == "depth" {
+		if g, ok := groundDepth(d); ok {
+			l, err := polyline(p, xy{[]float64{x0, x1}, []float64{g, g}}, colGround, 1)
+			if err != nil {
+				return nil, err
+			}
+			p.Legend.Add("ground", l)
+			if mc := d.MinCover; mc != nil && mc.Depth > 0 {
+				v := g + mc.Depth
+				l, err := polyline(p, xy{[]float64{x0, x1}, []float64{v, v}}, colWarning, 1.2, 5, 3)
+				if err != nil {
+					return nil, err
+				}
+				name := fmt.Sprintf("minimum cover %.2f m", mc.Depth)
+				if mc.Code != "" {
+					name += " (" + mc.Code + ")"
+				}
+				p.Legend.Add(name, l)
+			}
+		}
+		// Deeper is down: leave room at the bottom for the legend.
+		p.Legend.Top = false
+		padY(p, 0.05, 0.6)
+	}
+	// Mark current steps between their stations.
+	if which == "current" {
+		padY(p, 0.05, 0.35)
+		for _, f := range d.Findings {
+			if f.Kind != "current-step" {
+				continue
+			}
+			m := (f.ChainageFrom + f.ChainageTo) / 2
+			lo, hi := p.Y.Min, p.Y.Max
+			if _, err := polyline(p, xy{[]float64{m, m}, []float64{lo, hi}}, colWarning, 1, 4, 3); err != nil {
+				return nil, err
+			}
+		}
+	}
+	return p, nil
+}
+
+// padY widens the y range by the fractions lo and hi of its span at the
+// low and high ends, to leave room for a legend.
+func padY(p *plot.Plot, lo, hi float64) {
+	span := p.Y.Max - p.Y.Min
+	if span <= 0 {
+		span = math.Max(math.Abs(p.Y.Max), 1)
+	}
+	p.Y.Min -= lo * span
+	p.Y.Max += hi * span
+}
+
+// groundDepth returns the depth of the ground below the depth reference.
+func groundDepth(d *Document) (float64, bool) {
+	switch {
+	case d.DepthReference.Kind == DepthBelowGround:
+		return 0, true
+	case d.DepthReference.SensorHeight > 0:
+		return d.DepthReference.SensorHeight, true
+	}
+	return 0, false
+}
+
+func depthRefShort(d *Document) string {
+	if d.DepthReference.Kind == DepthBelowGround {
+		return "ground"
+	}
+	return "sensors"
+}
+
+// profilePlot plots a group's measured field against the fit across the
+// conductor.
+func profilePlot(d *Document, g *Group) (*plot.Plot, error) {
+	pr := g.Profile
+	title := "Group " + g.Key
+	if g.Key == "" {
+		title = "All readings"
+	}
+	if g.Chainage != nil {
+		title += fmt.Sprintf(" (chainage %.0f m)", *g.Chainage)
+	}
+	// The uniform background (the Earth's field, for DC) dwarfs the
+	// conductor's field: plot both without it.
+	ylabel := "field less fitted background (nT)"
+	if pr.Component == ComponentACInPhase {
+		ylabel = "in-phase RMS field (nT)"
+	}
+	bg := g.Background
+	if pr.Component == ComponentACInPhase {
+		bg = [3]float64{}
+	}
+	p := newPlot(title, "offset across the conductor (m)", ylabel)
+	p.Legend.Top = true
+	p.Legend.Left = false
+	names := [3]string{"east", "north", "up"}
+	cols := [3]color.Color{colEast, colNorth, colUp}
+	glyphs := [3]draw.GlyphDrawer{draw.CircleGlyph{}, draw.SquareGlyph{}, draw.TriangleGlyph{}}
+	for a := 0; a < 3; a++ {
+		m := make([]float64, len(pr.Offset))
+		f := make([]float64, len(pr.Offset))
+		for i := range pr.Offset {
+			m[i], f[i] = pr.Measured[i][a]-bg[a], pr.Predicted[i][a]-bg[a]
+		}
+		s, err := scatter(p, xy{pr.Offset, m}, glyphs[a], cols[a], 1.8)
+		if err != nil {
+			return nil, err
+		}
+		l, err := polyline(p, xy{pr.Offset, f}, cols[a], 1.2)
+		if err != nil {
+			return nil, err
+		}
+		if s != nil && l != nil {
+			p.Legend.Add(names[a]+" measured / fitted", s, l)
+		}
+	}
+	padY(p, 0.05, 0.45)
+	return p, nil
+}

@@ -1,0 +1,149 @@
+package report
+
+import "html/template"
+
+// crewTemplate is the crew report. It is self-contained: inline CSS and
+// SVG, no scripts, no fonts or images fetched from anywhere.
+var crewTemplate = template.Must(template.New("crew").Parse(crewHTML))
+
+const crewHTML = `<!DOCTYPE html>
+<html lang="en">
+<head>
+<meta charset="utf-8">
+<meta name="viewport" content="width=device-width, initial-scale=1">
+<title>{{.Title}}</title>
+<style>
+:root { --ink:#1f2933; --muted:#5f6b7a; --rule:#d5dae0; --fit:#1b6f8a; --warn:#b3261e; --caut:#c98a00; --info:#5f6b7a; --paper:#ffffff; --band:#f3f5f7; }
+* { box-sizing: border-box; }
+body { margin: 0 auto; max-width: 62rem; padding: 1.5rem 2rem 3rem; color: var(--ink); background: var(--paper);
+  font: 15px/1.45 "Liberation Sans", Arial, Helvetica, sans-serif; }
+h1 { font-size: 1.6rem; margin: 0 0 .2rem; }
+h2 { font-size: 1.15rem; margin: 2rem 0 .6rem; padding-bottom: .25rem; border-bottom: 2px solid var(--ink); }
+h3 { font-size: 1rem; margin: 1.2rem 0 .4rem; }
+.sub { color: var(--muted); margin: 0 0 1rem; }
+.cautions { border: 2px solid var(--ink); padding: .7rem 1rem; margin: 1rem 0 1.2rem; background: var(--band); }
+.cautions strong { display: block; text-transform: uppercase; letter-spacing: .06em; font-size: .85rem; margin-bottom: .3rem; }
+.cautions ol { margin: 0; padding-left: 1.3rem; }
+.summary p { margin: .35rem 0; }
+.summary .lead { font-size: 1.08rem; }
+.howsure { color: var(--muted); }
+table { border-collapse: collapse; width: 100%; margin: .5rem 0; font-size: .9rem; }
+th, td { text-align: left; vertical-align: top; padding: .3rem .45rem; border-bottom: 1px solid var(--rule); }
+th { background: var(--band); font-weight: 600; }
+td.num { text-align: right; white-space: nowrap; font-variant-numeric: tabular-nums; }
+tr.bad td { color: var(--muted); }
+.sev { display: inline-block; min-width: 4.8rem; text-align: center; padding: .05rem .4rem; border-radius: 3px;
+  font-size: .78rem; font-weight: 700; text-transform: uppercase; letter-spacing: .04em; color: #fff; }
+.sev-warning { background: var(--warn); }
+.sev-caution { background: var(--caut); color: var(--ink); }
+.sev-info { background: var(--info); }
+.values { color: var(--muted); font-size: .85rem; }
+figure { margin: 1rem 0; break-inside: avoid; page-break-inside: avoid; }
+figcaption { color: var(--muted); font-size: .85rem; margin-top: .2rem; }
+.plan svg { max-width: 34rem !important; }
+dl { display: grid; grid-template-columns: 14rem 1fr; gap: .25rem 1rem; margin: .5rem 0; font-size: .92rem; }
+dt { font-weight: 600; }
+dd { margin: 0; }
+code { font-size: .85em; word-break: break-all; }
+footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rule); color: var(--muted); font-size: .8rem; }
+@page { size: A4; margin: 14mm 12mm; }
+@media print {
+  body { max-width: none; padding: 0; font-size: 10.5pt; }
+  h2 { break-after: avoid; page-break-after: avoid; }
+  table, .cautions { break-inside: auto; }
+  tr { break-inside: avoid; page-break-inside: avoid; }
+}
+</style>
+</head>
+<body>
+<header>
+<h1>{{.Title}}</h1>
+<p class="sub">{{with .D.Site}}{{.}} · {{end}}{{with .D.Created}}made {{.}} · {{end}}{{.D.Tool.Name}} {{.D.Tool.Version}}</p>
+</header>
+
+<section class="cautions" aria-label="cautions">
+<strong>Read before acting on this report</strong>
+<ol>
+{{range .Cautions}}<li>{{.}}</li>
+{{end}}</ol>
+</section>
+
+<section class="summary">
+<h2>Summary</h2>
+{{range $i, $h := .Headline}}<p{{if eq $i 0}} class="lead"{{end}}>{{$h}}</p>
+{{end}}<p>{{.Counts}}</p>
+{{with .HowSure}}<p class="howsure">{{.}}</p>{{end}}
+{{if .Findings}}
+<table>
+<thead><tr><th>#</th><th>Severity</th><th>What</th><th>Where</th><th>Detail</th></tr></thead>
+<tbody>
+{{range .Findings}}<tr><td class="num">{{.N}}</td><td><span class="sev sev-{{.Severity}}">{{.Severity}}</span></td><td>{{.Kind}}</td><td>{{.Where}}</td><td>{{.Message}}{{with .Values}}<div class="values">{{.}}</div>{{end}}</td></tr>
+{{end}}</tbody>
+</table>
+{{end}}
+</section>
+
+<section>
+<h2>Plan view</h2>
+<figure class="plan">{{.Plan}}
+<figcaption>Readings (grey), fitted conductor{{if .D.Route}} and route (blue){{end}}{{if .Findings}}, findings numbered as in the summary (triangles coloured by severity){{end}}. Coordinates: {{.FrameText}}.</figcaption>
+</figure>
+</section>
+
+{{if .Current}}<section>
+<h2>Along the route</h2>
+<figure>{{.Current}}
+<figcaption>Fitted current per group with ± two standard deviations; dashed red lines mark steps in current (current leaving or joining the conductor). Current is signed along the route's direction of increasing chainage.</figcaption>
+</figure>
+<figure>{{.Depth}}
+<figcaption>Depth {{.DepthRef}}, with ± two standard deviations.{{with .DepthNote}} {{.}}{{end}}</figcaption>
+</figure>
+</section>
+{{end}}
+
+{{if .Profiles}}<section>
+<h2>Measured and fitted field</h2>
+<p>For a few groups: the field measured (markers) and the field of the fitted model (lines), east, north and up components, across the conductor, both less the fitted uniform background. A good fit runs through the markers.</p>
+{{range .Profiles}}<figure>{{.}}</figure>
+{{end}}</section>
+{{end}}
+
+<section>
+<h2>Every group</h2>
+<table>
+<thead><tr><th>Group</th><th>Chainage (m)</th><th>Current (A)</th>{{if eq .D.Signal.Mode "ac"}}<th>Phase (°)</th>{{end}}<th>Depth (m)</th><th>Cover (m)</th><th>Azimuth (°)</th><th>RMS (nT)</th><th>Readings</th><th>Fit</th></tr></thead>
+<tbody>
+{{$ac := eq .D.Signal.Mode "ac"}}{{range .Groups}}<tr{{if .Bad}} class="bad"{{end}}><td>{{.Key}}</td><td class="num">{{.Chainage}}</td><td class="num">{{.Current}}</td>{{if $ac}}<td class="num">{{.Phase}}</td>{{end}}<td class="num">{{.Depth}}</td><td class="num">{{.Cover}}</td><td class="num">{{.Azimuth}}</td><td class="num">{{.RMS}}</td><td class="num">{{.Points}}</td><td>{{.Status}}</td></tr>
+{{end}}</tbody>
+</table>
+<p class="values">Uncertainties are one standard deviation. Depth is {{.DepthRef}}.</p>
+</section>
+
+<section>
+<h2>Data, corrections and settings</h2>
+<dl>
+<dt>Calibration</dt><dd>{{with .D.Calibration}}{{.Summary}}{{with .File}} (<code>{{.}}</code>){{end}}{{else}}none applied: sensor offsets and scale errors are in the readings{{end}}</dd>
+<dt>Base-station correction</dt><dd>{{with .D.BaseStation}}{{.Summary}}{{with .File}} (<code>{{.}}</code>){{end}}{{else}}none applied{{end}}</dd>
+<dt>Signal</dt><dd>{{.SignalText}}</dd>
+<dt>Coordinates</dt><dd>{{.FrameText}}</dd>
+<dt>Depth reference</dt><dd>{{.DepthRef}}</dd>
+<dt>Minimum cover</dt><dd>{{with .D.MinCover}}{{printf "%.2f" .Depth}} m{{with .Code}} ({{.}}){{else}} (no code named){{end}}{{else}}not given: no cover check (published codes differ by country){{end}}</dd>
+{{range .Settings}}<dt>{{index . 0}}</dt><dd>{{index . 1}}</dd>
+{{end}}</dl>
+{{if .D.Inputs}}<h3>Input files</h3>
+<table>
+<thead><tr><th>Role</th><th>File</th><th>Readings</th><th>SHA-256</th></tr></thead>
+<tbody>
+{{range .D.Inputs}}<tr><td>{{.Role}}</td><td><code>{{.Path}}</code></td><td class="num">{{if .Rows}}{{.Rows}}{{end}}</td><td><code>{{.SHA256}}</code></td></tr>
+{{end}}</tbody>
+</table>{{end}}
+{{if .D.Warnings}}<h3>Warnings from the run</h3>
+<ul>
+{{range .D.Warnings}}<li>{{.}}</li>
+{{end}}</ul>{{end}}
+</section>
+
+<footer>Made by {{.D.Tool.Name}} {{.D.Tool.Version}} · result document schema {{.D.SchemaVersion}}. Positions in metres, fields in nanotesla, currents in amperes{{if eq .D.Signal.Mode "ac"}} (RMS){{end}}.</footer>
+</body>
+</html>
+`

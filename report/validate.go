@@ -1,0 +1,102 @@
+package report
+
+import (
+	"fmt"
+	"math"
+	"reflect"
+	"strings"
+)
+
+// Validate checks that d can be written and read back: every number is
+// finite (JSON has no NaN), the kinds are known, and the profile columns
+// have equal lengths. The error names the offending field by its JSON path
+// ("report: groups[2].sources[0].current_a is NaN").
+func (d *Document) Validate() error {
+	if d == nil {
+		return fmt.Errorf("report: nil document")
+	}
+	if d.SchemaVersion < 1 || d.SchemaVersion > SchemaVersion {
+		return fmt.Errorf("report: schema_version %d is not supported (this program reads 1 to %d)", d.SchemaVersion, SchemaVersion)
+	}
+	if err := finiteAll(reflect.ValueOf(d).Elem(), ""); err != nil {
+		return err
+	}
+	if d.Frame.Kind != FrameLocalENU {
+		return fmt.Errorf("report: frame.kind %q is not %q", d.Frame.Kind, FrameLocalENU)
+	}
+	if o := d.Frame.Origin; o != nil && (math.Abs(o.Lat) > 90 || math.Abs(o.Lon) > 180) {
+		return fmt.Errorf("report: frame.origin (%g, %g) is not a latitude and longitude in degrees", o.Lat, o.Lon)
+	}
+	switch d.DepthReference.Kind {
+	case DepthBelowSensors, DepthBelowGround:
+	default:
+		return fmt.Errorf("report: depth_reference.kind %q is not %q or %q", d.DepthReference.Kind, DepthBelowSensors, DepthBelowGround)
+	}
+	switch d.Signal.Mode {
+	case SignalDC, SignalAC:
+	default:
+		return fmt.Errorf("report: signal.mode %q is not %q or %q", d.Signal.Mode, SignalDC, SignalAC)
+	}
+	for i, g := range d.Groups {
+		if p := g.Profile; p != nil {
+			n := len(p.Positions)
+			if len(p.Offset) != n || len(p.Measured) != n || len(p.Predicted) != n {
+				return fmt.Errorf("report: groups[%d] (key %q).profile: %d positions, %d offsets, %d measured, %d predicted: lengths differ",
+					i, g.Key, n, len(p.Offset), len(p.Measured), len(p.Predicted))
+			}
+		}
+	}
+	for i, f := range d.Findings {
+		switch f.Severity {
+		case SeverityWarning, SeverityCaution, SeverityInfo:
+		default:
+			return fmt.Errorf("report: findings[%d].severity %q is not warning, caution or info", i, f.Severity)
+		}
+	}
+	return nil
+}
+
+// finiteAll walks v and reports the first float that is NaN or infinite,
+// naming it by its JSON path.
+func finiteAll(v reflect.Value, path string) error {
+	switch v.Kind() {
+	case reflect.Float64, reflect.Float32:
+		if f := v.Float(); math.IsNaN(f) || math.IsInf(f, 0) {
+			return fmt.Errorf("report: %s is %v", path, f)
+		}
+	case reflect.Pointer, reflect.Interface:
+		if !v.IsNil() {
+			return finiteAll(v.Elem(), path)
+		}
+	case reflect.Struct:
+		t := v.Type()
+		for i := 0; i < t.NumField(); i++ {
+			name, _, _ := strings.Cut(t.Field(i).Tag.Get("json"), ",")
+			if name == "" || name == "-" {
+				name = t.Field(i).Name
+			}
+			p := name
+			if path != "" {
+				p = path + "." + name
+			}
+			if err := finiteAll(v.Field(i), p); err != nil {
+				return err
+			}
+		}
+	case reflect.Slice, reflect.Array:
+		for i := 0; i < v.Len(); i++ {
+			p := fmt.Sprintf("%s[%d]", path, i)
+			if path == "groups" {
+				if k := v.Index(i).FieldByName("Key"); k.IsValid() && k.String() != "" {
+					p += fmt.Sprintf(" (key %q)", k.String())
+				}
+			}
+			if err := finiteAll(v.Index(i), p); err != nil {
+				return err
+			}
+		}
+	case reflect.Map:
+		// Settings hold strings only.
+	}
+	return nil
+}
