@@ -7,12 +7,9 @@ import (
 	"sort"
 )
 
-// Multi-start budget: every start first runs a short LM; the best few are then iterated
-// to convergence.
-const (
-	screenIter = 25
-	polishKeep = 2
-)
+// polishKeep is the multi-start budget: the starts are ranked by the projected sum of
+// squares at the seed and this many are iterated to convergence.
+const polishKeep = 3
 
 // candidate is one converged (or screened) K-line fit.
 type candidate struct {
@@ -176,41 +173,60 @@ func (f *fitter) fitK(k int, prev *candidate) (*candidate, error) {
 			}
 		}
 	}
-	var cands []*candidate
+	// Rank the starts by the projected sum of squares at the seed (one linear solve
+	// each), then iterate the most promising to convergence.
+	type ranked struct {
+		sp  *separable
+		x0  []float64
+		rss float64
+	}
+	var rs []ranked
 	var firstErr error
 	for _, g := range starts {
 		sp := newSeparable(f.sv.pts, f.sv.y, f.sv.nrhs, f.set.Background, f.sv.centroid, g)
 		lmp, x0 := sp.problem()
-		ls := f.set.lm()
-		ls.maxIter = screenIter
+		project(x0, lmp.lower, lmp.upper)
+		r := make([]float64, lmp.m)
+		if err := sp.resid(x0, r); err != nil {
+			if firstErr == nil {
+				firstErr = err
+			}
+			continue
+		}
+		rs = append(rs, ranked{sp, x0, sumSq(r)})
+	}
+	if len(rs) == 0 {
+		if firstErr == nil {
+			firstErr = errors.New("inverse: no starting geometry could be evaluated")
+		}
+		return nil, fmt.Errorf("inverse: fitting %d line(s): %w", k, firstErr)
+	}
+	sort.Slice(rs, func(i, j int) bool { return rs[i].rss < rs[j].rss })
+	var best *candidate
+	for _, st := range rs[:min(polishKeep, len(rs))] {
+		lmp, _ := st.sp.problem()
 		f.starts++
-		res, err := levmar(lmp, x0, ls)
+		res, err := levmar(lmp, st.x0, f.set.lm())
 		if err != nil {
 			if firstErr == nil {
 				firstErr = err
 			}
 			continue
 		}
-		cands = append(cands, &candidate{sp: sp, x: res.x, res: res, rss: res.rss, iters: res.iter})
-	}
-	if len(cands) == 0 {
-		if firstErr == nil {
-			firstErr = errors.New("inverse: no starting geometry could be evaluated")
+		if dbg {
+			println("fit", res.iter, res.nfev, res.status.String(), res.rss)
 		}
-		return nil, fmt.Errorf("inverse: fitting %d line(s): %w", k, firstErr)
-	}
-	sort.Slice(cands, func(i, j int) bool { return cands[i].rss < cands[j].rss })
-	var best *candidate
-	for _, c := range cands[:min(polishKeep, len(cands))] {
-		if err := f.polish(c); err != nil {
-			continue
+		agree := best != nil && math.Abs(res.rss-best.rss) <= 1e-8*best.rss
+		if best == nil || res.rss < best.rss {
+			best = &candidate{sp: st.sp, x: res.x, res: res, rss: res.rss, iters: res.iter}
 		}
-		if best == nil || c.rss < best.rss {
-			best = c
+		if agree {
+			// Two starts reached the same minimum: accept it.
+			break
 		}
 	}
 	if best == nil {
-		return nil, fmt.Errorf("inverse: fitting %d line(s): no start converged", k)
+		return nil, fmt.Errorf("inverse: fitting %d line(s): %w", k, firstErr)
 	}
 	if f.set.Robust {
 		if err := f.reweight(best); err != nil {
@@ -218,18 +234,6 @@ func (f *fitter) fitK(k int, prev *candidate) (*candidate, error) {
 		}
 	}
 	return best, nil
-}
-
-// polish iterates a screened candidate to convergence.
-func (f *fitter) polish(c *candidate) error {
-	lmp, _ := c.sp.problem()
-	res, err := levmar(lmp, c.x, f.set.lm())
-	if err != nil {
-		return err
-	}
-	c.x, c.res, c.rss = res.x, res, res.rss
-	c.iters += res.iter
-	return nil
 }
 
 // reweight runs iteratively reweighted least squares with Huber weights: residuals
@@ -348,3 +352,5 @@ func (f *fitter) guard(c *candidate) string {
 	}
 	return ""
 }
+
+var dbg bool

@@ -95,6 +95,8 @@ func levmar(p *lmProblem, x0 []float64, set lmSettings) (*lmResult, error) {
 	step := make([]float64, n)
 	jp := make([]float64, m)
 	free := make([]int, 0, n)
+	cn2 := make([]float64, n)
+	grad := make([]float64, n)
 	aug := make([]float64, m*(n+1))
 	tau := make([]float64, n+1)
 	work := make([]float64, 1)
@@ -118,14 +120,20 @@ func levmar(p *lmProblem, x0 []float64, set lmSettings) (*lmResult, error) {
 		free = free[:0]
 		gmax := 0.0
 		rn := math.Sqrt(rss)
-		for j := range n {
-			var cn, g float64
-			for i := range m {
-				v := J.At(i, j)
-				cn += v * v
-				g += v * r[i]
+		jd := J.RawMatrix()
+		for j := range cn2 {
+			cn2[j], grad[j] = 0, 0
+		}
+		for i := range m {
+			row := jd.Data[i*jd.Stride : i*jd.Stride+n]
+			ri := r[i]
+			for j, v := range row {
+				cn2[j] += v * v
+				grad[j] += v * ri
 			}
-			cn = math.Sqrt(cn)
+		}
+		for j := range n {
+			cn, g := math.Sqrt(cn2[j]), grad[j]
 			if iter == 0 {
 				diag[j] = cn
 				if diag[j] == 0 {
@@ -164,8 +172,9 @@ func levmar(p *lmProblem, x0 []float64, set lmSettings) (*lmResult, error) {
 		a := blas64.General{Rows: m, Cols: nf + 1, Stride: nf + 1, Data: aug[:m*(nf+1)]}
 		for i := range m {
 			row := a.Data[i*a.Stride:]
+			jrow := jd.Data[i*jd.Stride:]
 			for k, j := range free {
-				row[k] = J.At(i, j) / diag[j]
+				row[k] = jrow[j] / diag[j]
 			}
 			row[nf] = r[i]
 		}
@@ -250,8 +259,9 @@ func levmar(p *lmProblem, x0 []float64, set lmSettings) (*lmResult, error) {
 			dxn = math.Sqrt(dxn)
 			for i := range m {
 				v := r[i]
-				for j := range n {
-					v += J.At(i, j) * step[j]
+				jrow := jd.Data[i*jd.Stride : i*jd.Stride+n]
+				for j, jv := range jrow {
+					v += jv * step[j]
 				}
 				jp[i] = v
 			}

@@ -134,7 +134,9 @@ type Settings struct {
 	// MaxIter bounds the Levenberg-Marquardt iterations per start; 0 means 200.
 	MaxIter int
 	// FTol, XTol and GTol are the relative convergence tolerances (sum of squares,
-	// step, gradient); 0 means 1e-14, 1e-12 and 1e-14.
+	// step, gradient); 0 means 1e-10, 1e-10 and 1e-12. A relative reduction of 1e-10
+	// of the sum of squares of N readings leaves the parameters within about
+	// sqrt(1e-10 N) standard errors of the minimum, far inside their uncertainty.
 	FTol, XTol, GTol float64
 }
 
@@ -148,6 +150,15 @@ func (s *Settings) orDefault() Settings {
 	}
 	if out.MinDepth <= 0 {
 		out.MinDepth = 0.02
+	}
+	if out.FTol <= 0 {
+		out.FTol = 1e-10
+	}
+	if out.XTol <= 0 {
+		out.XTol = 1e-10
+	}
+	if out.GTol <= 0 {
+		out.GTol = 1e-12
 	}
 	if out.HuberC <= 0 {
 		out.HuberC = 1.345

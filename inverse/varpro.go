@@ -265,39 +265,49 @@ func (sp *separable) dPhiC(dst []float64, np int) {
 	for l := range sp.geom {
 		g := &sp.geom[l]
 		ln := g.line()
-		u := ln.Dir
+		u, p0 := ln.Dir, ln.Point
 		sa, ca := math.Sincos(g.az)
 		sd, cd := math.Sincos(g.dip)
-		duAz := [3]float64{ca * cd, -sa * cd, 0}
-		duDip := [3]float64{-sa * sd, -ca * sd, -cd}
-		_ = u
+		// Directions of the free parameters: dPoint/ds = n0, dPoint/dz = up, du/daz, du/ddip.
+		var dirs [4][3]float64
+		var isDir [4]bool // true: derivative along u; false: along the point
+		dirs[0], dirs[1] = g.n0, [3]float64{0, 0, 1}
+		nd := 2
+		if !g.holdAz {
+			dirs[nd], isDir[nd] = [3]float64{ca * cd, -sa * cd, 0}, true
+			nd++
+		}
+		if !g.holdDip {
+			dirs[nd], isDir[nd] = [3]float64{-sa * sd, -ca * sd, -cd}, true
+			nd++
+		}
 		for i, r := range sp.pts {
-			_, dP, dU := ln.FieldJac(r)
+			// B = K (u x d)/q, d = r - p0, q = |d|^2 - (d.u)^2, rho = d - (d.u) u.
+			// dB/dp0 . v = -K (u x v / q - 2 (rho.v)(u x d)/q^2)
+			// dB/du . w =  K (w x d / q + 2 (d.u)(d.w)(u x d)/q^2)
+			d := sub(r, p0)
+			du := dot(d, u)
+			rho := sub(d, scale(u, du))
+			q := dot(rho, rho)
+			ux := cross(u, d)
+			kq := nT * k2pi / q
+			kq2 := 2 * kq / q
 			var derivs [4][3]float64
-			nd := 0
-			for j := range 3 {
-				derivs[0][j] = nT * (dP[j][0]*g.n0[0] + dP[j][1]*g.n0[1] + dP[j][2]*g.n0[2])
-				derivs[1][j] = nT * dP[j][2]
-			}
-			nd = 2
-			if !g.holdAz {
-				for j := range 3 {
-					derivs[nd][j] = nT * (dU[j][0]*duAz[0] + dU[j][1]*duAz[1] + dU[j][2]*duAz[2])
+			for k := range nd {
+				v := dirs[k]
+				if isDir[k] {
+					derivs[k] = add(scale(cross(v, d), kq), scale(ux, kq2*du*dot(d, v)))
+				} else {
+					derivs[k] = add(scale(cross(u, v), -kq), scale(ux, kq2*dot(rho, v)))
 				}
-				nd++
-			}
-			if !g.holdDip {
-				for j := range 3 {
-					derivs[nd][j] = nT * (dU[j][0]*duDip[0] + dU[j][1]*duDip[1] + dU[j][2]*duDip[2])
-				}
-				nd++
 			}
 			for j := range 3 {
 				row := 3*i + j
 				w := sp.weight(row)
-				for d := range nd {
-					for k := range nr {
-						dst[row*cols+(p+d)*nr+k] = derivs[d][j] * sp.coef[l*nr+k] * w
+				base := dst[row*cols:]
+				for k := range nd {
+					for h := range nr {
+						base[(p+k)*nr+h] = derivs[k][j] * sp.coef[l*nr+h] * w
 					}
 				}
 			}
@@ -324,10 +334,13 @@ func (sp *separable) jac(x, _ []float64, J *mat.Dense) error {
 	}
 	lapack64.Ormqr(blas.Left, blas.Trans, a, sp.tau, c, sp.work, len(sp.work))
 	mq := sp.m - sp.q
+	jd := J.RawMatrix()
 	for k := range nr {
 		for i := range mq {
+			row := jd.Data[(k*mq+i)*jd.Stride:]
+			src := sp.dblk[(sp.q+i)*cols:]
 			for p := range np {
-				J.Set(k*mq+i, p, -sp.dblk[(sp.q+i)*cols+p*nr+k])
+				row[p] = -src[p*nr+k]
 			}
 		}
 	}

@@ -1,6 +1,7 @@
 package simulate
 
 import (
+	"bytes"
 	"fmt"
 	"math"
 	"math/big"
@@ -596,4 +597,23 @@ func BenchmarkSimulateDemo(b *testing.B) {
 		}
 	}
 	b.ReportMetric(float64(sc.Rows()), "readings/op")
+}
+
+// TestDemoBundled checks that the scenario bundled into the program is the
+// one in the repository (run go generate after editing the latter).
+func TestDemoBundled(t *testing.T) {
+	disk, err := os.ReadFile(demoPath)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !bytes.Equal(disk, DemoText()) {
+		t.Fatalf("the bundled demo scenario differs from %s: run go generate ./inverse/simulate", DemoPath)
+	}
+	sc, err := Demo()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if sc.Name != "fenwick-lane" || sc.Source != DemoPath {
+		t.Errorf("Demo() = %q from %q", sc.Name, sc.Source)
+	}
 }
