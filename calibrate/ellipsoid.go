@@ -21,6 +21,11 @@ type EllipsoidSettings struct {
 	Refine bool
 	// MaxIter bounds the refinement iterations. Zero means 50.
 	MaxIter int
+	// MaxSpread is the largest acceptable standard deviation of the
+	// corrected |B| as a fraction of the field; beyond it the readings do
+	// not lie on an ellipsoid (unsteady field, steel nearby, or a sensor
+	// fault) and the fit is refused. Zero means 0.01.
+	MaxSpread float64
 	// Coverage sets the orientation-coverage check run before the fit.
 	Coverage *CoverageSettings
 	// SkipCoverage disables that check (for tests of the algebra only).
@@ -239,6 +244,14 @@ func FitEllipsoid(readings [][3]float64, set *EllipsoidSettings) (*EllipsoidResu
 		corr[i] = matVec3(res.Matrix, [3]float64{r[0] - res.Offset[0], r[1] - res.Offset[1], r[2] - res.Offset[2]})
 	}
 	res.After = magnitudeSpread(corr)
+	maxSpread := es.MaxSpread
+	if maxSpread == 0 {
+		maxSpread = 0.01
+	}
+	if res.After.Std > maxSpread*res.Radius {
+		return nil, fmt.Errorf("calibrate: ellipsoid: the readings do not lie on an ellipsoid: corrected |B| still spreads by %.1f nT (%.2f%% of %.0f nT, limit %.2f%%); was the field steady and the sensor clear of steel?",
+			res.After.Std, 100*res.After.Std/res.Radius, res.Radius, 100*maxSpread)
+	}
 	return res, nil
 }
 

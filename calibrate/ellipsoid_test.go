@@ -133,6 +133,23 @@ func TestFitEllipsoidRefusesPoorCoverage(t *testing.T) {
 	}
 }
 
+func TestFitEllipsoidRefusesNonEllipsoid(t *testing.T) {
+	// Readings whose lower half is flattened (as if the field changed while
+	// the sensor was upside down) cover all orientations but fit no
+	// ellipsoid: refused rather than returned as a confident correction.
+	rng := rand.New(rand.NewPCG(7, 7))
+	r := spinLog(rng, 1000, 50000, identity3(), [3]float64{}, 1, nil)
+	for i := range r {
+		if r[i][2] < -10000 {
+			r[i][2] = -10000
+		}
+	}
+	_, err := FitEllipsoid(r, nil)
+	if err == nil || !strings.Contains(err.Error(), "do not lie on an ellipsoid") {
+		t.Errorf("err = %v, want a refusal", err)
+	}
+}
+
 func TestFitEllipsoidBadInput(t *testing.T) {
 	r := spinLog(rand.New(rand.NewPCG(5, 6)), 100, 50000, identity3(), [3]float64{}, 1, nil)
 	r[17][1] = math.NaN()

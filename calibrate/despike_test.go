@@ -1,0 +1,130 @@
+package calibrate
+
+import (
+	"math"
+	"math/rand/v2"
+	"slices"
+	"testing"
+
+	"undercurrent/ingest"
+)
+
+func TestDespikeRemovesInsertedSpikes(t *testing.T) {
+	// A slowly varying field with 1 nT Gaussian noise and spikes of ±40 nT
+	// (40 sigma) at known rows, including two adjacent ones and one at the
+	// very start. The median/MAD (Hampel) filter must remove exactly those
+	// rows, in every column, and few others: with the defaults (k = 5, a
+	// 21-sample window) false alarms on Gaussian noise are under 0.1% per
+	// axis, so under 0.5% of rows over three axes.
+	const n = 5000
+	rng := rand.New(rand.NewPCG(23, 24))
+	s := &ingest.Samples{Source: "kestrel-moor.csv"}
+	for i := 0; i < n; i++ {
+		tt := float64(i) * 0.1
+		s.Time = append(s.Time, tt)
+		s.X = append(s.X, 0.05*float64(i))
+		s.Bx = append(s.Bx, 1500+30*math.Sin(tt/20)+rng.NormFloat64())
+		s.By = append(s.By, 20800+rng.NormFloat64())
+		s.Bz = append(s.Bz, -47500+10*math.Cos(tt/7)+rng.NormFloat64())
+		g := "A"
+		if i >= n/2 {
+			g = "B"
+		}
+		s.Group = append(s.Group, g)
+	}
+	spikes := []int{0, 400, 401, 1234, 2499, 2500, 4999}
+	for j, i := range spikes {
+		sign := 1.0
+		if j%2 == 1 {
+			sign = -1
+		}
+		switch j % 3 {
+		case 0:
+			s.Bx[i] += sign * 40
+		case 1:
+			s.By[i] += sign * 40
+		default:
+			s.Bz[i] += sign * 40
+		}
+	}
+	s.Bz[3000] = math.NaN() // a missing reading
+	rep, err := Despike(s, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, i := range append(spikes, 3000) {
+		if !slices.Contains(rep.Rows, i) {
+			t.Errorf("spike at row %d not removed", i)
+		}
+	}
+	extra := rep.Removed - len(spikes) - 1
+	if extra < 0 || extra > n/200 {
+		t.Errorf("%d rows removed beyond the %d spikes, want 0..%d", extra, len(spikes)+1, n/200)
+	}
+	if rep.NonFinite != 1 {
+		t.Errorf("non-finite %d, want 1", rep.NonFinite)
+	}
+	if rep.Kept != n-rep.Removed || s.Len() != rep.Kept || len(s.X) != rep.Kept || len(s.Group) != rep.Kept || len(s.Bz) != rep.Kept {
+		t.Fatalf("columns not compacted together: kept %d, time %d, x %d, group %d", rep.Kept, s.Len(), len(s.X), len(s.Group))
+	}
+	// Rows stay aligned: x was 0.05 × original row.
+	for i := range s.Time {
+		if math.Abs(s.X[i]-0.5*s.Time[i]) > 1e-9 {
+			t.Fatalf("row %d misaligned after removal", i)
+		}
+	}
+	// Nothing left deviates by 20 sigma.
+	for i := 1; i+1 < s.Len(); i++ {
+		if math.Abs(s.By[i]-20800) > 20 {
+			t.Fatalf("row %d: by = %g survived", i, s.By[i])
+		}
+	}
+}
+
+func TestFindSpikesFalseAlarms(t *testing.T) {
+	// The documented false-alarm rate of the defaults on white Gaussian
+	// noise: below 0.1% per axis.
+	rng := rand.New(rand.NewPCG(25, 26))
+	x := make([]float64, 100000)
+	for i := range x {
+		x[i] = 3 * rng.NormFloat64()
+	}
+	_, per, _, err := FindSpikes([][]float64{x}, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if rate := float64(per[0]) / float64(len(x)); rate > 1e-3 {
+		t.Errorf("false-alarm rate %.4f%%, want below 0.1%%", 100*rate)
+	}
+}
+
+func TestFindSpikesFloor(t *testing.T) {
+	// Quantised quiet data (MAD = 0): steps of 0.1 nT are not spikes because
+	// of the 0.5 nT floor, a 5 nT jump on one sample is.
+	x := []float64{10, 10, 10, 10.1, 10, 10, 10, 15, 10, 10, 10, 10.1, 10}
+	sp, per, _, err := FindSpikes([][]float64{x}, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if per[0] != 1 || !sp[7] {
+		t.Errorf("spikes %v, want only row 7", sp)
+	}
+	if _, _, _, err := FindSpikes([][]float64{x}, &DespikeSettings{Threshold: -1}); err == nil {
+		t.Error("negative threshold: want an error")
+	}
+}
+
+func BenchmarkDespike(b *testing.B) {
+	const n = 100000
+	rng := rand.New(rand.NewPCG(1, 1))
+	cols := [][]float64{make([]float64, n), make([]float64, n), make([]float64, n)}
+	for k := range cols {
+		for i := range cols[k] {
+			cols[k][i] = rng.NormFloat64()
+		}
+	}
+	for b.Loop() {
+		FindSpikes(cols, nil)
+	}
+	b.ReportMetric(float64(n)*float64(b.N)/b.Elapsed().Seconds()/1e6, "Mrows/s")
+}

@@ -1,0 +1,215 @@
+package main
+
+import (
+	"context"
+	"encoding/json"
+	"fmt"
+	"io"
+	"strings"
+
+	"github.com/spf13/pflag"
+
+	"undercurrent/calibrate"
+	"undercurrent/ingest"
+)
+
+func init() {
+	var (
+		spin, zero, flip0, flip180, flipAxis, out, show string
+		reference                                       float64
+		refine, asJSON                                  bool
+	)
+	register(&command{
+		name:    "calibrate",
+		usage:   "(--spin FILE | --flip0 FILE --flip180 FILE | --zero FILE | --show CAL.json) [-o CAL.json] [flags]",
+		summary: "make a sensor calibration file (offset and soft-iron matrix) from a calibration log",
+		long: `Calibrate works out the sensor's own errors from a log taken for the purpose
+and writes them to a versioned JSON calibration file, which other commands
+apply with --calibration CAL.json. The file records the method, the date, the
+input files with their SHA-256 checksums and the residual statistics.
+
+Methods (give exactly one):
+  --spin FILE      turn the sensor through as many orientations as possible in
+                   a steady field (away from steel and traffic). An ellipsoid is
+                   fitted to the readings: hard-iron offset and a symmetric
+                   soft-iron / scale / non-orthogonality matrix. The spread of
+                   |B| before and after is printed. A log that does not cover
+                   enough orientations is refused with what is missing.
+  --flip0 FILE --flip180 FILE
+                   readings at 0 and 180 degrees of rotation about one axis
+                   (--flip-axis, default z): offsets of the two other axes.
+  --zero FILE      readings inside a magnetic shield: offsets of all axes.
+  --show CAL.json  print a saved calibration file.
+
+Logs are any format ingest reads (CSV, Arrow, Parquet); only bx, by, bz are
+used, in the sensor's own axes.
+
+Examples:
+  undercurrent calibrate --spin harrow-fen-spin.csv -o harrow-fen-cal.json
+  undercurrent calibrate --spin spin.csv --reference 49850 --refine -o cal.json
+  undercurrent calibrate --flip0 north.csv --flip180 south.csv -o cal.json
+  undercurrent calibrate --zero shield.csv -o cal.json --json
+  undercurrent calibrate --show cal.json`,
+		setFlags: func(fs *pflag.FlagSet) {
+			fs.StringVar(&spin, "spin", "", "spin log for the ellipsoid fit")
+			fs.StringVar(&flip0, "flip0", "", "log at 0 degrees for the flip method")
+			fs.StringVar(&flip180, "flip180", "", "log at 180 degrees for the flip method")
+			fs.StringVar(&flipAxis, "flip-axis", "z", "axis the sensor was turned about for the flip method (x, y or z)")
+			fs.StringVar(&zero, "zero", "", "zero-field log (inside a magnetic shield)")
+			fs.StringVar(&show, "show", "", "print a saved calibration file and exit")
+			fs.StringVarP(&out, "output", "o", "", "calibration file to write (JSON); omit to only print the statistics")
+			fs.Float64Var(&reference, "reference", 0, "field magnitude at the site, nT, for the spin method (0: keep the fitted ellipsoid's volume)")
+			fs.BoolVar(&refine, "refine", false, "refine the ellipsoid fit by least squares on |B| (spin method)")
+			fs.BoolVar(&asJSON, "json", false, "print the calibration as JSON instead of text")
+		},
+		run: func(ctx context.Context, fs *pflag.FlagSet, args []string, stdout, stderr io.Writer) error {
+			if len(args) != 0 {
+				return usageErrorf("unexpected argument %q: give the logs with --spin, --flip0/--flip180 or --zero", args[0])
+			}
+			methods := 0
+			for _, s := range []string{spin, zero, show} {
+				if s != "" {
+					methods++
+				}
+			}
+			if flip0 != "" || flip180 != "" {
+				methods++
+				if flip0 == "" || flip180 == "" {
+					return usageErrorf("the flip method needs both --flip0 and --flip180")
+				}
+			}
+			if methods != 1 {
+				return usageErrorf("give exactly one of --spin, --flip0/--flip180, --zero or --show")
+			}
+			if show != "" {
+				cal, err := calibrate.Load(show)
+				if err != nil {
+					return err
+				}
+				return printCalibration(stdout, cal, asJSON)
+			}
+			var cal *calibrate.Calibration
+			switch {
+			case spin != "":
+				r, in, err := readCalibrationLog("spin", spin)
+				if err != nil {
+					return err
+				}
+				res, err := calibrate.FitEllipsoid(r, &calibrate.EllipsoidSettings{Reference: reference, Refine: refine})
+				if err != nil {
+					return inFile(spin, err)
+				}
+				cal = calibrate.FromEllipsoid(res, in)
+			case zero != "":
+				r, in, err := readCalibrationLog("zero", zero)
+				if err != nil {
+					return err
+				}
+				res, err := calibrate.ZeroOffset(r)
+				if err != nil {
+					return inFile(zero, err)
+				}
+				cal = calibrate.FromOffset(calibrate.MethodZero, res, in)
+			default:
+				axis := strings.Index("xyz", strings.ToLower(flipAxis))
+				if len(flipAxis) != 1 || axis < 0 {
+					return usageErrorf("--flip-axis %q: want x, y or z", flipAxis)
+				}
+				r0, in0, err := readCalibrationLog("flip0", flip0)
+				if err != nil {
+					return err
+				}
+				r1, in1, err := readCalibrationLog("flip180", flip180)
+				if err != nil {
+					return err
+				}
+				res, err := calibrate.FlipOffset(r0, r1, axis)
+				if err != nil {
+					return err
+				}
+				cal = calibrate.FromOffset(calibrate.MethodFlip, res, in0, in1)
+			}
+			if out != "" {
+				if err := cal.Save(out); err != nil {
+					return err
+				}
+			}
+			if err := printCalibration(stdout, cal, asJSON); err != nil {
+				return err
+			}
+			if !asJSON {
+				if out != "" {
+					fmt.Fprintf(stdout, "wrote %s\n", out)
+				} else {
+					fmt.Fprintf(stdout, "not saved: give -o FILE to write the calibration\n")
+				}
+			}
+			return nil
+		},
+	})
+}
+
+// inFile names path in an error from the calibrate package, whose own
+// "calibrate: " prefix is dropped (the command's prefix says as much).
+func inFile(path string, err error) error {
+	return fmt.Errorf("%s: %s", path, strings.TrimPrefix(err.Error(), "calibrate: "))
+}
+
+// readCalibrationLog reads the field readings of a calibration log and
+// records the file with its checksum.
+func readCalibrationLog(role, path string) ([][3]float64, calibrate.Input, error) {
+	s, err := ingest.ReadSamples(path)
+	if err != nil {
+		return nil, calibrate.Input{}, err
+	}
+	r, err := calibrate.Readings(s)
+	if err != nil {
+		return nil, calibrate.Input{}, err
+	}
+	in, err := calibrate.FileInput(role, path, len(r))
+	return r, in, err
+}
+
+func printCalibration(w io.Writer, cal *calibrate.Calibration, asJSON bool) error {
+	if asJSON {
+		enc := json.NewEncoder(w)
+		enc.SetIndent("", "  ")
+		return enc.Encode(cal)
+	}
+	fmt.Fprintf(w, "method      %s (file version %d, made %s)\n", cal.Method, cal.Version, cal.Created.Format("2006-01-02 15:04:05Z"))
+	for _, in := range cal.Inputs {
+		fmt.Fprintf(w, "input       %s: %s, %d readings, sha256 %s\n", in.Role, in.File, in.Samples, in.SHA256)
+	}
+	fmt.Fprintf(w, "offset      %10.2f %10.2f %10.2f nT", cal.Offset[0], cal.Offset[1], cal.Offset[2])
+	if cal.OffsetSigma != nil {
+		s := cal.OffsetSigma
+		fmt.Fprintf(w, "  (± %.2f, %.2f, %.2f)", s[0], s[1], s[2])
+	}
+	fmt.Fprintln(w)
+	for i, row := range cal.Matrix {
+		label := ""
+		if i == 0 {
+			label = "matrix"
+		}
+		fmt.Fprintf(w, "%-11s %10.6f %10.6f %10.6f\n", label, row[0], row[1], row[2])
+	}
+	if cal.Reference != 0 {
+		fmt.Fprintf(w, "reference   %.1f nT\n", cal.Reference)
+	}
+	if cal.Before != nil && cal.After != nil {
+		b, a := cal.Before, cal.After
+		fmt.Fprintf(w, "|B| before  mean %.2f nT, std %.3f nT, range %.2f to %.2f nT\n", b.Mean, b.Std, b.Min, b.Max)
+		fmt.Fprintf(w, "|B| after   mean %.2f nT, std %.3f nT, range %.2f to %.2f nT\n", a.Mean, a.Std, a.Min, a.Max)
+	}
+	if c := cal.Coverage; c != nil {
+		fmt.Fprintf(w, "coverage    direction-scatter eigenvalues %.3f %.3f %.3f (even: 0.333); caps", c.Eigen[0], c.Eigen[1], c.Eigen[2])
+		for i, name := range []string{"+x", "-x", "+y", "-y", "+z", "-z"} {
+			fmt.Fprintf(w, " %s %.0f%%", name, 100*c.Caps[i])
+		}
+		fmt.Fprintln(w)
+	}
+	for _, n := range cal.Notes {
+		fmt.Fprintf(w, "note        %s\n", n)
+	}
+	return nil
+}
