@@ -155,6 +155,15 @@ func newIAGAReader(name string, rd io.Reader, cfg *config) (*iagaReader, error) 
 		return nil, err
 	}
 	r.pl = pl
+	h1, h2, h3 := header[1], header[2], header[3]
+	switch set {
+	case "XYZ":
+		pl.desc[cBx], pl.desc[cBy], pl.desc[cBz] = h2+" (Y)", h1+" (X)", "-"+h3+" (Z down)"
+	case "HDZ":
+		pl.desc[cBx], pl.desc[cBy], pl.desc[cBz] = h1+" sin "+h2+" (D arc-min)", h1+" cos "+h2, "-"+h3+" (Z down)"
+	case "HEZ":
+		pl.desc[cBx], pl.desc[cBy], pl.desc[cBz] = h2+" (E)", h1+" (H)", "-"+h3+" (Z down)"
+	}
 	return r, nil
 }
 

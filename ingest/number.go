@@ -156,3 +156,5 @@ func isMissingText(b []byte) bool {
 }
 
 func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
+
+func unixTime(sec, nsec int64) time.Time { return time.Unix(sec, nsec) }

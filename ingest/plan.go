@@ -19,12 +19,13 @@ type plan struct {
 	src      [nCanon]int // source column index, -1 when absent
 	unit     [nCanon]string
 	scale    [nCanon]float64
-	auto     [nCanon]bool  // found by name rather than by an explicit mapping
-	geodetic bool          // positions come from lat/lon/height
-	hasPos   bool          // output has x, y, z
-	inFrame  Frame         // frame of the input columns
-	out      []int         // canonical indices of the output columns, in order
-	schema   *arrow.Schema // output schema, with metadata
+	auto     [nCanon]bool   // found by name rather than by an explicit mapping
+	desc     [nCanon]string // how a column is derived, when more than a copy
+	geodetic bool           // positions come from lat/lon/height
+	hasPos   bool           // output has x, y, z
+	inFrame  Frame          // frame of the input columns
+	out      []int          // canonical indices of the output columns, in order
+	schema   *arrow.Schema  // output schema, with metadata
 	meta     map[string]string
 	origin   *Geodetic
 	enu      enuFrame
@@ -44,6 +45,8 @@ func (p *plan) mappings() []ColumnMapping {
 	for _, c := range p.out {
 		cm := ColumnMapping{Column: canonNames[c], Unit: p.unit[c], Scale: p.scale[c]}
 		switch {
+		case p.desc[c] != "":
+			cm.Source = p.desc[c]
 		case p.src[c] >= 0:
 			cm.Source = p.header[p.src[c]]
 		case c >= cX && c <= cZ && p.geodetic:
