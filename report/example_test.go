@@ -82,38 +82,18 @@ func ExampleWriteJSON() {
 	//     {
 	//       "key": "",
 	//       "points": 41,
-	//       "centroid_m": [
-	//         0,
-	//         0,
-	//         0
-	//       ],
+	//       "centroid_m": [0, 0, 0],
 	//       "rms_nt": 4.8,
-	//       "background_nt": [
-	//         210,
-	//         18740,
-	//         -45110
-	//       ],
-	//       "background_sigma_nt": [
-	//         0,
-	//         0,
-	//         0
-	//       ],
+	//       "background_nt": [210, 18740, -45110],
+	//       "background_sigma_nt": [0, 0, 0],
 	//       "chi2": 0,
 	//       "dof": 0,
 	//       "ok": true,
 	//       "sources": [
 	//         {
 	//           "kind": "line",
-	//           "point_m": [
-	//             2.41,
-	//             0,
-	//             -1.12
-	//           ],
-	//           "direction": [
-	//             0,
-	//             1,
-	//             0
-	//           ],
+	//           "point_m": [2.41, 0, -1.12],
+	//           "direction": [0, 1, 0],
 	//           "current_a": 12.31,
 	//           "current_sigma_a": 0.04,
 	//           "depth_m": 1.12,
@@ -124,10 +104,7 @@ func ExampleWriteJSON() {
 	//           "azimuth_sigma_deg": 0.3,
 	//           "dip_deg": 0,
 	//           "dip_sigma_deg": 0,
-	//           "span_m": [
-	//             0,
-	//             0
-	//           ]
+	//           "span_m": [0, 0]
 	//         }
 	//       ]
 	//     }
@@ -138,11 +115,7 @@ func ExampleWriteJSON() {
 	//       "severity": "caution",
 	//       "chainage_from_m": 0,
 	//       "chainage_to_m": 0,
-	//       "position_m": [
-	//         2.41,
-	//         0,
-	//         -1.12
-	//       ],
+	//       "position_m": [2.41, 0, -1.12],
 	//       "message": "example only"
 	//     }
 	//   ]

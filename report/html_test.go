@@ -2,7 +2,10 @@ package report
 
 import (
 	"bytes"
+	"math"
 	"os"
+	"path/filepath"
+	"reflect"
 	"regexp"
 	"strings"
 	"testing"
@@ -85,5 +88,56 @@ func TestHTMLSingleGroup(t *testing.T) {
 	}
 	if !strings.Contains(page, "Conductor 1: 83.7 ± 0.600 A") || !strings.Contains(page, "No findings") {
 		t.Errorf("summary does not state the conductor:\n%s", page[strings.Index(page, "<h2>Summary"):][:600])
+	}
+}
+
+func TestWriteFiles(t *testing.T) {
+	dir := filepath.Join(t.TempDir(), "out", "fenwick")
+	d := fenwickLane(true)
+	if err := WriteFiles(dir, d); err != nil {
+		t.Fatal(err)
+	}
+	for _, name := range []string{FileJSON, FileCSV, FileGeoJSON, FileHTML} {
+		st, err := os.Stat(filepath.Join(dir, name))
+		if err != nil || st.Size() == 0 {
+			t.Errorf("%s: %v", name, err)
+		}
+	}
+	f, err := os.Open(filepath.Join(dir, FileJSON))
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	back, err := ReadJSON(f, FileJSON)
+	if err != nil || !reflect.DeepEqual(back, d) {
+		t.Errorf("results.json does not read back: %v", err)
+	}
+	entries, _ := os.ReadDir(dir)
+	if len(entries) != 4 {
+		t.Errorf("%d entries in the output directory, want 4 (no temporary files left)", len(entries))
+	}
+}
+
+// An invalid document leaves no directory behind.
+func TestWriteFilesInvalid(t *testing.T) {
+	dir := filepath.Join(t.TempDir(), "never")
+	d := fenwickLane(false)
+	d.Groups[3].RMS = math.NaN()
+	err := WriteFiles(dir, d)
+	if err == nil || !strings.Contains(err.Error(), `groups[3] (key "T04").rms_nt is NaN`) {
+		t.Errorf("error %v", err)
+	}
+	if _, err := os.Stat(dir); !os.IsNotExist(err) {
+		t.Errorf("output directory exists after a failed write: %v", err)
+	}
+}
+
+func TestWriteFilesNotADirectory(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "file")
+	if err := os.WriteFile(path, []byte("x"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if err := WriteFiles(path, fenwickLane(false)); err == nil || !strings.Contains(err.Error(), "not a directory") {
+		t.Errorf("error %v", err)
 	}
 }

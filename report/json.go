@@ -18,7 +18,7 @@ func WriteJSON(w io.Writer, d *Document) error {
 	if err != nil {
 		return fmt.Errorf("report: %w", err)
 	}
-	b = append(b, '\n')
+	b = append(collapseNumberArrays(b), '\n')
 	if _, err := w.Write(b); err != nil {
 		return fmt.Errorf("report: writing JSON: %w", err)
 	}
@@ -89,4 +89,67 @@ func (d *Document) normalized() *Document {
 		}
 	}
 	return &c
+}
+
+// collapseNumberArrays rewrites indented JSON so that arrays holding only
+// numbers sit on one line ("[1.5, -2, 3]"), leaving strings untouched.
+func collapseNumberArrays(b []byte) []byte {
+	out := make([]byte, 0, len(b))
+	inString, escaped := false, false
+	for i := 0; i < len(b); i++ {
+		c := b[i]
+		if inString {
+			out = append(out, c)
+			switch {
+			case escaped:
+				escaped = false
+			case c == '\\':
+				escaped = true
+			case c == '"':
+				inString = false
+			}
+			continue
+		}
+		if c == '"' {
+			inString = true
+			out = append(out, c)
+			continue
+		}
+		if c == '[' {
+			if j, ok := numberArrayEnd(b, i); ok {
+				out = append(out, '[')
+				first := true
+				for _, f := range bytes.FieldsFunc(b[i+1:j], func(r rune) bool { return r == ',' || r == ' ' || r == '\n' || r == '\t' || r == '\r' }) {
+					if !first {
+						out = append(out, ", "...)
+					}
+					out = append(out, f...)
+					first = false
+				}
+				out = append(out, ']')
+				i = j
+				continue
+			}
+		}
+		out = append(out, c)
+	}
+	return out
+}
+
+// numberArrayEnd returns the index of the ']' closing the array opened at
+// b[i] when it holds only numbers (and is not empty).
+func numberArrayEnd(b []byte, i int) (int, bool) {
+	digits := false
+	for j := i + 1; j < len(b); j++ {
+		switch c := b[j]; {
+		case c == ']':
+			return j, digits
+		case c >= '0' && c <= '9':
+			digits = true
+		case c == '-' || c == '+' || c == '.' || c == 'e' || c == 'E' || c == ',' || c == ' ' || c == '\n' || c == '\t' || c == '\r':
+		default:
+			return 0, false
+		}
+	}
+	return 0, false
 }

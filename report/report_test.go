@@ -290,3 +290,19 @@ func TestGeoJSONGolden(t *testing.T) {
 		golden(t, name, buf.Bytes())
 	}
 }
+
+func TestCollapseNumberArrays(t *testing.T) {
+	tests := []struct{ in, want string }{
+		{"[\n  1,\n  -2.5e-3,\n  3\n]", "[1, -2.5e-3, 3]"},
+		{`{"a": [` + "\n" + `"x", 1]}`, `{"a": [` + "\n" + `"x", 1]}`},       // mixed: kept
+		{`{"m": "see [1, 2]", "v": [ 4 ]}`, `{"m": "see [1, 2]", "v": [4]}`}, // strings untouched
+		{`{"m": "quote \" [1,  2]"}`, `{"m": "quote \" [1,  2]"}`},           // escaped quote
+		{"[]", "[]"},                         // empty
+		{"[[1,\n 2], [3]]", "[[1, 2], [3]]"}, // nested
+	}
+	for _, tc := range tests {
+		if got := string(collapseNumberArrays([]byte(tc.in))); got != tc.want {
+			t.Errorf("collapse(%q) = %q, want %q", tc.in, got, tc.want)
+		}
+	}
+}

@@ -18,8 +18,8 @@ func (d *Document) Validate() error {
 	if d.SchemaVersion < 1 || d.SchemaVersion > SchemaVersion {
 		return fmt.Errorf("report: schema_version %d is not supported (this program reads 1 to %d)", d.SchemaVersion, SchemaVersion)
 	}
-	if err := finiteAll(reflect.ValueOf(d).Elem(), ""); err != nil {
-		return err
+	if b := finiteAll(reflect.ValueOf(d).Elem()); b != nil {
+		return b.error()
 	}
 	if d.Frame.Kind != FrameLocalENU {
 		return fmt.Errorf("report: frame.kind %q is not %q", d.Frame.Kind, FrameLocalENU)
@@ -56,47 +56,65 @@ func (d *Document) Validate() error {
 	return nil
 }
 
-// finiteAll walks v and reports the first float that is NaN or infinite,
-// naming it by its JSON path.
-func finiteAll(v reflect.Value, path string) error {
+// badFloat is a non-finite value found by finiteAll; path is built on the
+// way back up, so that walking a valid document formats nothing.
+type badFloat struct {
+	path []string // innermost first
+	v    float64
+}
+
+// finiteAll walks v and reports the first float that is NaN or infinite.
+func finiteAll(v reflect.Value) *badFloat {
 	switch v.Kind() {
 	case reflect.Float64, reflect.Float32:
 		if f := v.Float(); math.IsNaN(f) || math.IsInf(f, 0) {
-			return fmt.Errorf("report: %s is %v", path, f)
+			return &badFloat{v: f}
 		}
 	case reflect.Pointer, reflect.Interface:
 		if !v.IsNil() {
-			return finiteAll(v.Elem(), path)
+			return finiteAll(v.Elem())
 		}
 	case reflect.Struct:
 		t := v.Type()
 		for i := 0; i < t.NumField(); i++ {
-			name, _, _ := strings.Cut(t.Field(i).Tag.Get("json"), ",")
-			if name == "" || name == "-" {
-				name = t.Field(i).Name
-			}
-			p := name
-			if path != "" {
-				p = path + "." + name
-			}
-			if err := finiteAll(v.Field(i), p); err != nil {
-				return err
+			if b := finiteAll(v.Field(i)); b != nil {
+				name, _, _ := strings.Cut(t.Field(i).Tag.Get("json"), ",")
+				if name == "" || name == "-" {
+					name = t.Field(i).Name
+				}
+				b.path = append(b.path, "."+name)
+				return b
 			}
 		}
 	case reflect.Slice, reflect.Array:
-		for i := 0; i < v.Len(); i++ {
-			p := fmt.Sprintf("%s[%d]", path, i)
-			if path == "groups" {
-				if k := v.Index(i).FieldByName("Key"); k.IsValid() && k.String() != "" {
-					p += fmt.Sprintf(" (key %q)", k.String())
+		if v.Type().Elem().Kind() == reflect.Float64 {
+			for i := 0; i < v.Len(); i++ {
+				if f := v.Index(i).Float(); math.IsNaN(f) || math.IsInf(f, 0) {
+					return &badFloat{v: f, path: []string{fmt.Sprintf("[%d]", i)}}
 				}
 			}
-			if err := finiteAll(v.Index(i), p); err != nil {
-				return err
+			return nil
+		}
+		for i := 0; i < v.Len(); i++ {
+			if b := finiteAll(v.Index(i)); b != nil {
+				seg := fmt.Sprintf("[%d]", i)
+				if k := v.Index(i); k.Kind() == reflect.Struct && k.Type() == reflect.TypeFor[Group]() && k.FieldByName("Key").String() != "" {
+					seg += fmt.Sprintf(" (key %q)", k.FieldByName("Key").String())
+				}
+				b.path = append(b.path, seg)
+				return b
 			}
 		}
 	case reflect.Map:
 		// Settings hold strings only.
 	}
 	return nil
+}
+
+func (b *badFloat) error() error {
+	var sb strings.Builder
+	for i := len(b.path) - 1; i >= 0; i-- {
+		sb.WriteString(b.path[i])
+	}
+	return fmt.Errorf("report: %s is %v", strings.TrimPrefix(sb.String(), "."), b.v)
 }

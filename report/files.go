@@ -1,0 +1,80 @@
+package report
+
+import (
+	"bytes"
+	"errors"
+	"fmt"
+	"io"
+	"io/fs"
+	"os"
+	"path/filepath"
+
+	"undercurrent/ingest"
+)
+
+// The files WriteFiles makes.
+const (
+	FileJSON    = "results.json"
+	FileCSV     = "results.csv"
+	FileGeoJSON = "route.geojson"
+	FileHTML    = "report.html"
+)
+
+// WriteFiles writes results.json, results.csv, route.geojson and
+// report.html into dir, creating dir (and its parents) when it does not
+// exist. Everything is rendered in memory first, so a document that cannot
+// be written leaves the disk untouched; each file is then written atomically
+// (ingest.WriteFileAtomic). If a write fails, the files already written are
+// removed, and so is dir when WriteFiles created it: there is no partial
+// output directory.
+func WriteFiles(dir string, d *Document) error {
+	type out struct {
+		name  string
+		write func(io.Writer, *Document) error
+		data  []byte
+	}
+	files := []*out{
+		{name: FileJSON, write: WriteJSON},
+		{name: FileCSV, write: WriteCSV},
+		{name: FileGeoJSON, write: WriteGeoJSON},
+		{name: FileHTML, write: WriteHTML},
+	}
+	for _, f := range files {
+		var buf bytes.Buffer
+		if err := f.write(&buf, d); err != nil {
+			return err
+		}
+		f.data = buf.Bytes()
+	}
+	created := false
+	switch st, err := os.Stat(dir); {
+	case errors.Is(err, fs.ErrNotExist):
+		if err := os.MkdirAll(dir, 0o755); err != nil {
+			return fmt.Errorf("report: %w", err)
+		}
+		created = true
+	case err != nil:
+		return fmt.Errorf("report: %w", err)
+	case !st.IsDir():
+		return fmt.Errorf("report: %s exists and is not a directory", dir)
+	}
+	var written []string
+	for _, f := range files {
+		path := filepath.Join(dir, f.name)
+		err := ingest.WriteFileAtomic(path, func(w io.Writer) error {
+			_, err := w.Write(f.data)
+			return err
+		})
+		if err != nil {
+			for _, p := range written {
+				os.Remove(p)
+			}
+			if created {
+				os.Remove(dir) // only succeeds when empty, as it should
+			}
+			return fmt.Errorf("report: writing %s: %w", path, err)
+		}
+		written = append(written, path)
+	}
+	return nil
+}
