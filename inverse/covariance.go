@@ -4,6 +4,8 @@ import (
 	"errors"
 	"math"
 
+	"gonum.org/v1/gonum/blas/blas64"
+	"gonum.org/v1/gonum/lapack/lapack64"
 	"gonum.org/v1/gonum/mat"
 )
 
@@ -33,14 +35,27 @@ func covariance(J mat.Matrix) (cov *mat.SymDense, unresolved []bool, err error) 
 			d[j] = 1
 		}
 	}
-	js := mat.NewDense(m, n, nil)
+	// QR of the scaled Jacobian first; the SVD of its small triangular factor has the
+	// same singular values and right singular vectors.
+	a := blas64.General{Rows: m, Cols: n, Stride: n, Data: make([]float64, m*n)}
 	for i := range m {
 		for j := range n {
-			js.Set(i, j, J.At(i, j)/d[j])
+			a.Data[i*n+j] = J.At(i, j) / d[j]
+		}
+	}
+	tau := make([]float64, n)
+	work := make([]float64, 1)
+	lapack64.Geqrf(a, tau, work, -1)
+	work = make([]float64, int(work[0]))
+	lapack64.Geqrf(a, tau, work, len(work))
+	rf := mat.NewDense(n, n, nil)
+	for i := range n {
+		for j := i; j < n; j++ {
+			rf.Set(i, j, a.Data[i*n+j])
 		}
 	}
 	var svd mat.SVD
-	if !svd.Factorize(js, mat.SVDThin) {
+	if !svd.Factorize(rf, mat.SVDThin) {
 		return nil, nil, errors.New("inverse: singular value decomposition failed")
 	}
 	sv := svd.Values(nil)

@@ -213,9 +213,6 @@ func (f *fitter) fitK(k int, prev *candidate) (*candidate, error) {
 			}
 			continue
 		}
-		if dbg {
-			println("fit", res.iter, res.nfev, res.status.String(), res.rss)
-		}
 		agree := best != nil && math.Abs(res.rss-best.rss) <= 1e-8*best.rss
 		if best == nil || res.rss < best.rss {
 			best = &candidate{sp: st.sp, x: res.x, res: res, rss: res.rss, iters: res.iter}
@@ -352,5 +349,3 @@ func (f *fitter) guard(c *candidate) string {
 	}
 	return ""
 }
-
-var dbg bool

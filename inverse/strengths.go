@@ -1,0 +1,285 @@
+package inverse
+
+import (
+	"errors"
+	"fmt"
+	"math"
+
+	"gonum.org/v1/gonum/blas"
+	"gonum.org/v1/gonum/blas/blas64"
+	"gonum.org/v1/gonum/lapack/lapack64"
+	"gonum.org/v1/gonum/mat"
+)
+
+// FitStrengths estimates the strengths of sources whose geometry is known (the
+// conductors of a survey already fitted, or of a site plan), with a background chosen by
+// set.Background: a linear least-squares problem solved by Householder QR, with the
+// covariance of the strengths. It is the fast path of the live pipeline, which calls it
+// for every demodulated window.
+//
+// Strengths are in each source's units (A for lines and segments, A m^2 for dipoles,
+// tesla for a Background source; do not combine a Background source with
+// set.Background, which would make the basis singular). Result.Strengths lists them in
+// the order of sources (AC: Result.StrengthPhasors, with StrengthSigmas the one-sigma of
+// each real and imaginary part, equal to that of the magnitude to first order).
+// Result.Sources has one entry per Line source, in order, with the geometry held.
+// Only set.Background and set.ReferenceZ are used from the settings.
+func FitStrengths(p *Problem, sources []Source, set *Settings) (*Result, error) {
+	if p == nil {
+		return nil, errors.New("inverse: nil problem")
+	}
+	if err := p.validate(); err != nil {
+		return nil, err
+	}
+	if len(sources) == 0 {
+		return nil, errors.New("inverse: FitStrengths needs at least one source")
+	}
+	s := set.orDefault()
+	sv := newSurvey(p)
+	n, nr := len(p.Points), sv.nrhs
+	m := 3 * n
+	ns := 0
+	for _, src := range sources {
+		ns += src.NumStrengths()
+	}
+	nb := s.Background.columns()
+	q := ns + nb
+	if m <= q {
+		return nil, fmt.Errorf("inverse: %d readings (3 axes each) are too few for %d strengths", n, q)
+	}
+	phi := make([]float64, m*q)
+	basis := make([][3]float64, 8)
+	bgc := Background{Origin: sv.centroid, Gradient: s.Background == BackgroundGradient}
+	for i, r := range p.Points {
+		col := 0
+		for si, src := range sources {
+			k := src.NumStrengths()
+			if cap(basis) < k {
+				basis = make([][3]float64, k)
+			}
+			b := basis[:k]
+			src.Basis(r, b)
+			for c := range k {
+				for j := range 3 {
+					v := b[c][j] * nT
+					if !finite(v) {
+						return nil, fmt.Errorf("inverse: reading %d lies on source %d: the field is not finite there", i, si)
+					}
+					phi[(3*i+j)*q+col+c] = v
+				}
+			}
+			col += k
+		}
+		if nb > 0 {
+			bgc.Basis(r, basis[:nb])
+			for c := range nb {
+				for j := range 3 {
+					phi[(3*i+j)*q+ns+c] = basis[c][j]
+				}
+			}
+		}
+	}
+	phiCopy := append([]float64(nil), phi...)
+	coef, err := solveLinear(phi, m, q, sv.y, nr)
+	if err != nil {
+		return nil, err
+	}
+	// Residuals.
+	res := make([]float64, m*nr)
+	var rss float64
+	for row := range m {
+		for k := range nr {
+			v := sv.y[row*nr+k]
+			for j := range q {
+				v -= phiCopy[row*q+j] * coef[j*nr+k]
+			}
+			res[row*nr+k] = v
+			rss += v * v
+		}
+	}
+	cov, unres, err := covariance(mat.NewDense(m, q, phiCopy))
+	if err != nil {
+		return nil, err
+	}
+	r := &Result{Status: Linear, DOF: m*nr - q*nr}
+	switch {
+	case p.Sigma > 0:
+		r.Sigma = p.Sigma
+	case r.DOF > 0:
+		r.Sigma = math.Sqrt(rss / float64(r.DOF))
+	}
+	if r.Sigma > 0 {
+		r.Chi2 = rss / (r.Sigma * r.Sigma)
+	}
+	cov.ScaleSym(r.Sigma*r.Sigma, cov)
+	r.Covariance = cov
+	for j := range q {
+		if unres[j] {
+			return nil, fmt.Errorf("inverse: strength %d cannot be separated from the others with these readings", j)
+		}
+	}
+	sig := func(j int) float64 { return math.Sqrt(math.Max(cov.At(j, j), 0)) }
+	for j := range ns {
+		r.StrengthSigmas = append(r.StrengthSigmas, sig(j))
+		if nr == 1 {
+			r.Strengths = append(r.Strengths, coef[j])
+		} else {
+			r.StrengthPhasors = append(r.StrengthPhasors, complex(coef[j*2], coef[j*2+1]))
+		}
+		r.ParamNames = append(r.ParamNames, fmt.Sprintf("strength%d", j+1))
+	}
+	for j := range nb {
+		r.ParamNames = append(r.ParamNames, []string{"bg.e", "bg.n", "bg.u", "grad.ee", "grad.en", "grad.eu", "grad.nn", "grad.nu"}[j])
+	}
+	for j := range min(nb, 3) {
+		if nr == 1 {
+			r.Background[j], r.BackgroundSigma[j] = coef[ns+j], sig(ns+j)
+		} else {
+			c := complex(coef[(ns+j)*2], coef[(ns+j)*2+1])
+			r.BackgroundPhasor[j] = c
+			r.Background[j] = math.Hypot(real(c), imag(c))
+			r.BackgroundSigma[j] = sig(ns + j)
+		}
+	}
+	if nb == 8 && nr == 1 {
+		r.Gradient = append([]float64(nil), coef[ns+3:ns+8]...)
+	}
+	r.DepthReference, r.ReferenceZ = "mean sensor height", sv.zmean
+	if s.ReferenceZ != nil {
+		r.DepthReference, r.ReferenceZ = "ReferenceZ", *s.ReferenceZ
+	}
+	// Line summaries with geometry held.
+	col := 0
+	for _, src := range sources {
+		if ln, ok := src.(Line); ok {
+			e := heldLine(ln, sv, r.ReferenceZ)
+			if nr == 1 {
+				e.Current = coef[col]
+			} else {
+				c := complex(coef[col*2], coef[col*2+1])
+				e.Current = math.Hypot(real(c), imag(c))
+				e.Phase = math.Atan2(imag(c), real(c)) * 180 / math.Pi
+				e.Identifiable.Phase = true
+			}
+			if e.flip {
+				e.Current, e.Phase = flipCurrent(e.Current, e.Phase, nr)
+			}
+			e.CurrentSigma = sig(col)
+			e.PhaseSigma = 0
+			if nr == 2 && e.Current > 0 {
+				e.PhaseSigma = sig(col) / e.Current * 180 / math.Pi
+			}
+			r.Sources = append(r.Sources, e.SourceEstimate)
+		}
+		col += src.NumStrengths()
+	}
+	var ss float64
+	if nr == 1 {
+		r.Residuals, r.Predicted = make([][3]float64, n), make([][3]float64, n)
+		for i := range n {
+			for j := range 3 {
+				e := res[3*i+j]
+				r.Residuals[i][j], r.Predicted[i][j] = e, p.Fields[i][j]-e
+				ss += e * e
+			}
+		}
+	} else {
+		r.ResidualPhasors, r.PredictedPhasors = make([][3]complex128, n), make([][3]complex128, n)
+		for i := range n {
+			for j := range 3 {
+				e := complex(res[(3*i+j)*2], res[(3*i+j)*2+1])
+				r.ResidualPhasors[i][j], r.PredictedPhasors[i][j] = e, p.Phasors[i][j]-e
+				ss += real(e)*real(e) + imag(e)*imag(e)
+			}
+		}
+	}
+	r.RMS = math.Sqrt(ss / float64(m))
+	if r.Sigma == 0 {
+		r.StrengthSigmas = nil
+		r.Notes = append(r.Notes, "no degrees of freedom to estimate the noise and Problem.Sigma is zero: uncertainties are not available")
+		for i := range r.Sources {
+			r.Sources[i].Identifiable = Identifiable{}
+		}
+	}
+	return r, nil
+}
+
+type heldEstimate struct {
+	SourceEstimate
+	flip bool
+}
+
+// heldLine describes a line of known geometry in the reporting conventions of FitLines.
+func heldLine(ln Line, sv *survey, zref float64) heldEstimate {
+	u := scale(ln.Dir, 1/norm(ln.Dir))
+	az := math.Atan2(u[0], u[1])
+	flip := false
+	if az < 0 || az >= math.Pi {
+		flip = true
+		u = scale(u, -1)
+		az = math.Atan2(u[0], u[1])
+	}
+	if az >= math.Pi || az < 0 { // vertical or exactly south after rounding
+		az = math.Mod(az+2*math.Pi, math.Pi)
+	}
+	pt := add(ln.Point, scale(u, dot(sub(sv.centroid, ln.Point), u)))
+	right := [3]float64{math.Cos(az), -math.Sin(az), 0}
+	e := SourceEstimate{
+		Kind: "line", Point: pt, Dir: u,
+		Depth:        zref - pt[2],
+		Offset:       dot(sub(pt, sv.centroid), right),
+		Azimuth:      az * 180 / math.Pi,
+		Dip:          -math.Asin(math.Max(-1, math.Min(1, u[2]))) * 180 / math.Pi,
+		Identifiable: Identifiable{Current: true},
+		Notes:        []string{"geometry held: only the current was fitted"},
+	}
+	return heldEstimate{e, flip}
+}
+
+func flipCurrent(cur, phase float64, nr int) (float64, float64) {
+	if nr == 1 {
+		return -cur, phase
+	}
+	phase += 180
+	if phase > 180 {
+		phase -= 360
+	}
+	return cur, phase
+}
+
+// solveLinear solves min ||phi c - y|| for nrhs right-hand sides by Householder QR
+// (phi m x q row-major is overwritten); y is m x nrhs row-major. It returns c (q x nrhs).
+func solveLinear(phi []float64, m, q int, y []float64, nrhs int) ([]float64, error) {
+	a := blas64.General{Rows: m, Cols: q, Stride: q, Data: phi}
+	tau := make([]float64, q)
+	qty := append([]float64(nil), y...)
+	c := blas64.General{Rows: m, Cols: nrhs, Stride: nrhs, Data: qty}
+	work := make([]float64, 1)
+	lapack64.Geqrf(a, tau, work, -1)
+	lw := int(work[0])
+	lapack64.Ormqr(blas.Left, blas.Trans, a, tau, c, work, -1)
+	lw = max(lw, int(work[0]), m, nrhs)
+	work = make([]float64, lw)
+	lapack64.Geqrf(a, tau, work, lw)
+	var rmax float64
+	for k := range q {
+		rmax = math.Max(rmax, math.Abs(phi[k*q+k]))
+	}
+	for k := range q {
+		if math.Abs(phi[k*q+k]) <= 1e-11*rmax {
+			return nil, fmt.Errorf("inverse: strength %d cannot be separated from the others with these readings", k)
+		}
+	}
+	lapack64.Ormqr(blas.Left, blas.Trans, a, tau, c, work, lw)
+	coef := make([]float64, q*nrhs)
+	for k := range nrhs {
+		for i := q - 1; i >= 0; i-- {
+			s := qty[i*nrhs+k]
+			for j := i + 1; j < q; j++ {
+				s -= phi[i*q+j] * coef[j*nrhs+k]
+			}
+			coef[i*nrhs+k] = s / phi[i*q+i]
+		}
+	}
+	return coef, nil
+}
