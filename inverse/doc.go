@@ -1,17 +1,115 @@
 // Package inverse holds the physics core of undercurrent: forward models of the magnetic
 // field of currents and magnetised objects, and the separable least-squares solver that
-// finds conductors from three-axis field readings.
+// finds conductors, their currents and their uncertainties from three-axis field
+// readings.
+//
+// A caller needs only Problem (readings at positions), Settings (nil is fine),
+// FitLines or FitStrengths, and Result.
+//
+// # Units and frames
+//
+// Positions are metres in a local east, north, up frame; readings are nanotesla on the
+// same axes; currents are amperes (RMS for AC phasors); the forward models return tesla.
+// Mu0 is the CODATA 2022 value (NIST), defined once.
 //
 // # Forward models
 //
-// All fields are in tesla, positions in metres (local east, north, up), currents in
-// amperes. Every model is linear in its strength, B = Phi(geometry) c, which the solver
-// exploits. Mu0 is the CODATA 2022 value.
+// Every model is linear in its strength, B(r) = Phi(r; geometry) c, and gives analytic
+// derivatives with respect to its geometry (FieldJac), checked against finite
+// differences in the tests.
 //
-//	Line      infinite filament, B = (mu0 I / 2 pi) (u x rho) / |rho|^2
-//	Segment   finite filament (Hanson & Hirshman, Phys. Plasmas 9(10), 4410, 2002), in a
-//	          cancellation-free form
-//	Polyline  chain of segments, one current per segment
-//	Dipole    point dipole, B = (mu0 / 4 pi)(3 rhat (m.rhat) - m)/r^3
-//	Background uniform field with an optional source-free linear gradient
+//	Line        infinite straight filament through p0 along unit u (Biot-Savart/Ampere):
+//	              rho = (r - p0) - ((r - p0).u) u,   B = (mu0 I / 2 pi) (u x rho) / |rho|^2
+//	Segment     finite filament a -> b (Hanson & Hirshman, Phys. Plasmas 9(10), 4410, 2002):
+//	              Ri = r - a, Rf = r - b, c = Ri x Rf,
+//	              B = (mu0 I / 4 pi) c (|Ri| + |Rf|) / (|Ri||Rf| (|Ri||Rf| + Ri.Rf))
+//	            evaluated without cancellation: when Ri.Rf < 0,
+//	              |Ri||Rf| + Ri.Rf = |c|^2 / (|Ri||Rf| - Ri.Rf),
+//	            and c = (b - a) x (r - m) with m the midpoint.
+//	Polyline    chain of segments, one current per segment (current lost along a route).
+//	Dipole      B = (mu0 / 4 pi) (3 rhat (m . rhat) - m) / |r|^3.
+//	Background  uniform field B0 plus optionally a source-free gradient G (symmetric,
+//	            traceless: five terms) about an origin.
+//
+// # Line parametrisation
+//
+// A fitted line crosses a vertical plane through the centroid of the readings, fixed
+// perpendicular to its starting direction, at offset s along the plane and height z; its
+// direction is
+//
+//	u = (sin az cos dip, cos az cos dip, -sin dip)
+//
+// with az the azimuth clockwise from north and dip positive descending along u. For a
+// single traverse only the line's crossing and current are determined in practice (the
+// along-line component of the field, which would carry the azimuth and dip, is hostage to
+// sensor heading errors), so az is held perpendicular to the traverse and dip at zero and
+// both are reported as not identifiable. Over several traverses both are fitted. Bounds
+// keep every line at least Settings.MinDepth below the lowest sensor.
+//
+// # Separable least squares (variable projection)
+//
+// With the geometry theta fixed, the strengths c (currents, background) solve a linear
+// problem, c(theta) = Phi(theta)^+ y, so only theta is iterated on the reduced residual
+//
+//	r(theta) = P_perp(theta) y,  P_perp = I - Phi Phi^+
+//
+// (Golub & Pereyra, SIAM J. Numer. Anal. 10(2):413-432, 1973; review in Inverse Problems
+// 19:R1-R26, 2003). Phi = QR by Householder reflections; the residual handed to the
+// optimiser is Q2^T y and its Jacobian Kaufman's approximation -Q2^T (dPhi/dtheta) c
+// (Kaufman, BIT 15:49-57, 1975), which gives the exact gradient. AC phasor readings are
+// stacked as real and imaginary parts sharing one geometry: the strengths become complex
+// currents, reported as RMS magnitude and phase.
+//
+// # Levenberg-Marquardt
+//
+// The optimiser is Levenberg-Marquardt with scaled trust-region steps (More, Lecture
+// Notes in Mathematics 630, 105-116, 1978): at each iteration the column-scaled Jacobian
+// J D^-1 is factored by QR (never J^T J); the step p minimises ||J p + r|| subject to
+// ||D p|| <= Delta, found on the small triangular factor through its singular value
+// decomposition and a safeguarded Newton iteration for the Levenberg parameter. The
+// radius grows or shrinks with the ratio of actual to predicted reduction. Simple bounds
+// are kept by freezing components on a bound whose gradient points outwards and
+// projecting trial points. The engine reproduces the NIST StRD certified values for
+// Misra1a and MGH09 from both certified starts. Result.Status says why it stopped.
+//
+// # Starting values and the number of conductors
+//
+// No starting guess is needed. Starts come from the field itself (common practice, see
+// DOMAIN.md): the horizontal component across a line peaks over it and its half-width at
+// half maximum equals the depth below the sensor; the horizontal anomaly at the peak is
+// perpendicular to the line, and the region above half the peak is elongated along it.
+// Starts are ranked by their projected sum of squares and the best are iterated. For K
+// lines the starts are the best K-1 fit plus a line at the peak of its residual, or one of
+// its lines split into a close pair (a cable and its return).
+//
+// With Settings.Count = 0 the count K = 1..4 is chosen by an information criterion,
+//
+//	AIC = chi2 + 2k,  BIC = chi2 + k ln N   (N ln(RSS/N) in place of chi2 when the noise
+//	                                          is estimated)
+//
+// with an over-fitting guard: a further line is accepted only if the criterion falls and
+// every line's current differs from zero by more than three sigma, no line sits on a
+// bound, and no two lines coincide within their uncertainty (a line with no current has
+// no identifiable position). Result.Criteria reports the values.
+//
+// # Uncertainty
+//
+// The covariance comes from the full Jacobian [d(Phi c)/dtheta, Phi] at the solution,
+// not from the reduced problem:
+//
+//	C = s^2 (J^T J)^-1,  s^2 = Problem.Sigma^2, or RSS/(N - k) when Sigma is zero
+//
+// computed from the singular value decomposition of the column-scaled J (after QR), so a
+// rank-deficient direction is detected and the quantities depending on it are reported
+// as not identifiable instead of with a meaningless sigma. Reported quantities (current,
+// phase, depth, offset, azimuth, dip) get their sigmas by the delta method. On the
+// DOMAIN.md Cramer-Rao example the empirical scatter over repeated noisy surveys matches
+// the bound and the reported sigmas.
+//
+// # Robust fitting
+//
+// Settings.Robust applies Huber weights by iterative reweighting (Huber, Ann. Math.
+// Statist. 35(1):73-101, 1964; Holland & Welsch, Commun. Statist. A6(9):813-827, 1977):
+// threshold 1.345 robust standard deviations, scale 1.4826 times the median absolute
+// deviation of the residuals (citation details from memory).
 package inverse

@@ -41,6 +41,9 @@ func FitLines(p *Problem, set *Settings) (*Result, error) {
 		return nil, fmt.Errorf("inverse: %d readings are too few for a line fit", len(p.Points))
 	}
 	sv := newSurvey(p)
+	if sv.single && s.Background == BackgroundGradient {
+		return nil, errors.New("inverse: a background gradient cannot be resolved from a single traverse; use BackgroundUniform")
+	}
 	f := &fitter{sv: sv, set: &s, prob: p}
 	if s.Count > 0 {
 		var prev *candidate

@@ -298,7 +298,7 @@ func deriveQuantities(sp *separable, sv *survey, zref float64, flip []bool, v []
 			azd += 360
 		}
 		o[qAzimuth] = math.Mod(azd, 180)
-		o[qDip] = dip * 180 / math.Pi
+		o[qDip] = dip*180/math.Pi + 0 // + 0 turns -0 into 0
 		if nr == 1 {
 			o[qCurrent] = real(cur[l])
 		} else {
