@@ -53,3 +53,23 @@ func CoilPhasor(v complex128, coil Coil, freq float64) (complex128, error) {
 	}
 	return complex(0, 1e9/g) * v, nil
 }
+
+// CoilWindows converts demodulated windows of coil voltages (B and Sigma
+// in volts, as Demodulate returns them when the log's field columns hold
+// coil outputs) to field in nT in place, each at its own frequency. A
+// window the conversion rejects leaves the windows unchanged.
+func CoilWindows(ws []Window, coil Coil) error {
+	for i, w := range ws {
+		if _, err := coil.gain(w.Freq); err != nil {
+			return fmt.Errorf("calibrate: coil: window %d: %w", i, err)
+		}
+	}
+	for i := range ws {
+		g, _ := coil.gain(ws[i].Freq)
+		for k := 0; k < 3; k++ {
+			ws[i].B[k] *= complex(0, 1e9/g)
+			ws[i].Sigma[k] *= 1e9 / g
+		}
+	}
+	return nil
+}

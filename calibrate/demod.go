@@ -272,6 +272,11 @@ func DemodulateColumns(c *Columns, set *DemodSettings) (*DemodResult, error) {
 				ds.Freq+res.DriftHz, ds.Freq, ds.Band, ds.Window))
 		}
 	}
+	if d.outBand > 0 {
+		res.Warnings = append(res.Warnings, fmt.Sprintf(
+			"in %d of %d windows the estimated frequency (%.3f to %.3f Hz) is outside %g ± %.3f Hz, first at %s",
+			d.outBand, len(res.Windows), d.outLo, d.outHi, ds.Freq, ds.Band, d.firstOut))
+	}
 	if len(res.Windows) == 0 {
 		return nil, fmt.Errorf("calibrate: demodulate: no run of the log is as long as one %g s window (%d samples)", ds.Window, N)
 	}
@@ -352,6 +357,10 @@ type demodulator struct {
 	tpl    *template
 	res    *DemodResult
 	drifts []float64
+	// windows whose estimated frequency left the band
+	outBand      int
+	outLo, outHi float64
+	firstOut     string
 	// scratch
 	xty  []float64
 	beta []float64
@@ -401,7 +410,12 @@ func (d *demodulator) window(lo, hi int) error {
 		}
 		w.Freq = f
 		if math.Abs(f-set.Freq) > set.Band {
-			d.res.Warnings = append(d.res.Warnings, fmt.Sprintf("window at rows %d-%d (t = %.3f s): frequency %.3f Hz is outside %g ± %.3f Hz", lo, hi-1, w.Time, f, set.Freq, set.Band))
+			if d.outBand == 0 {
+				d.firstOut = fmt.Sprintf("rows %d-%d, t = %s", lo, hi-1, fmtTime(w.Time))
+				d.outLo, d.outHi = f, f
+			}
+			d.outBand++
+			d.outLo, d.outHi = math.Min(d.outLo, f), math.Max(d.outHi, f)
 		}
 		var err2 error
 		tpl, err2 = d.generalTemplate(lo, hi, f)

@@ -212,6 +212,14 @@ func TestDemodulateWarnings(t *testing.T) {
 	if len(res.Warnings) != 0 {
 		t.Errorf("unexpected warnings with a 2 Hz band: %q", res.Warnings)
 	}
+	// With the default 1 Hz band every window is out of band: one warning.
+	res, err = DemodulateColumns(c, &DemodSettings{Freq: 50, Window: 0.1, EstimateFreq: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(res.Warnings) != 1 || !strings.Contains(res.Warnings[0], "in 100 of 100 windows") {
+		t.Errorf("warnings %q, want one covering 100 windows", res.Warnings)
+	}
 	// Too few cycles: 0.04 s at 50 Hz is two cycles.
 	c = acLog(rng, 2000, 2000, 0, 50, testPhasors, 0.1)
 	res, err = DemodulateColumns(c, &DemodSettings{Freq: 50, Window: 0.04})

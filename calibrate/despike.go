@@ -3,6 +3,7 @@ package calibrate
 import (
 	"fmt"
 	"math"
+	"sort"
 )
 
 // DespikeSettings controls the Hampel spike filter. A nil *DespikeSettings
@@ -85,49 +86,87 @@ func FindSpikes(cols [][]float64, set *DespikeSettings) (spike []bool, perCol []
 			}
 		}
 	}
-	K := ds.HalfWidth
-	win := make([]float64, 0, 2*K+1)
-	dev := make([]float64, 0, 2*K+1)
 	for ci, c := range cols {
-		for i, x := range c {
-			if math.IsNaN(x) || math.IsInf(x, 0) {
-				continue
-			}
-			win = win[:0]
-			for j := max(0, i-K); j < min(n, i+K+1); j++ {
-				if v := c[j]; !math.IsNaN(v) && !math.IsInf(v, 0) {
-					win = append(win, v)
-				}
-			}
-			med := smallMedian(win)
-			dev = dev[:0]
-			for _, v := range win {
-				dev = append(dev, math.Abs(v-med))
-			}
-			s := math.Max(1.4826*smallMedian(dev), ds.Floor)
-			if math.Abs(x-med) > ds.Threshold*s {
-				perCol[ci]++
-				spike[i] = true
-			}
-		}
+		perCol[ci] = hampel(c, ds, spike)
 	}
 	return spike, perCol, nonFinite, nil
 }
 
-// smallMedian sorts x in place by insertion (x is a short window) and
-// returns its median.
-func smallMedian(x []float64) float64 {
-	for i := 1; i < len(x); i++ {
-		v := x[i]
-		j := i - 1
-		for ; j >= 0 && x[j] > v; j-- {
-			x[j+1] = x[j]
+func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
+
+// hampel marks the spikes of one column in spike and returns their number.
+// It keeps the moving window sorted (one binary-search insertion and one
+// removal per step) and finds the MAD by merging the deviations either
+// side of the median, so a step costs O(window) rather than a sort.
+func hampel(c []float64, ds DespikeSettings, spike []bool) int {
+	n, K := len(c), ds.HalfWidth
+	win := make([]float64, 0, 2*K+1)
+	insert := func(v float64) {
+		if !finite(v) {
+			return
 		}
-		x[j+1] = v
+		i := sort.SearchFloat64s(win, v)
+		win = append(win, 0)
+		copy(win[i+1:], win[i:])
+		win[i] = v
 	}
-	n := len(x)
-	if n%2 == 1 {
-		return x[n/2]
+	remove := func(v float64) {
+		if !finite(v) {
+			return
+		}
+		i := sort.SearchFloat64s(win, v)
+		win = append(win[:i], win[i+1:]...)
 	}
-	return 0.5 * (x[n/2-1] + x[n/2])
+	for j := 0; j < min(n, K+1); j++ {
+		insert(c[j])
+	}
+	count := 0
+	for i, x := range c {
+		if i > 0 {
+			if j := i + K; j < n {
+				insert(c[j])
+			}
+			if j := i - K - 1; j >= 0 {
+				remove(c[j])
+			}
+		}
+		if !finite(x) || len(win) == 0 {
+			continue
+		}
+		m := len(win)
+		med := win[m/2]
+		if m%2 == 0 {
+			med = 0.5 * (win[m/2-1] + win[m/2])
+		}
+		s := math.Max(1.4826*sortedMAD(win, med), ds.Floor)
+		if math.Abs(x-med) > ds.Threshold*s {
+			count++
+			spike[i] = true
+		}
+	}
+	return count
+}
+
+// sortedMAD returns the median of |w - med| for sorted w by merging the
+// deviations below and above med, which are each already in order.
+func sortedMAD(w []float64, med float64) float64 {
+	m := len(w)
+	p := sort.SearchFloat64s(w, med)
+	a, b := p-1, p
+	next := func() float64 {
+		if b >= m || (a >= 0 && med-w[a] <= w[b]-med) {
+			a--
+			return med - w[a+1]
+		}
+		b++
+		return w[b-1] - med
+	}
+	var d0, d1 float64
+	for k := 0; k <= m/2; k++ {
+		d0, d1 = d1, next()
+	}
+	if m%2 == 1 {
+		return d1
+	}
+	return 0.5 * (d0 + d1)
 }

@@ -69,8 +69,17 @@
 //
 // A Hampel filter: a reading is a spike when it departs from the median of
 // its neighbours by more than k times the scaled median absolute deviation
-// 1.4826 MAD (Hampel 1974; the 1.4826 makes the MAD a consistent estimate
-// of a normal standard deviation).
+// 1.4826 MAD (Hampel 1974, from memory; the 1.4826 makes the MAD a
+// consistent estimate of a normal standard deviation). The defaults, a
+// 21-sample window and k = 5, flag under 0.1% of white Gaussian noise per
+// axis. Rows with a missing field value go too, and the report says how
+// many of each.
+//
+// # Order of the stages
+//
+// Sensor calibration belongs to the sensor frame, so the order is: despike,
+// apply the calibration, tilt to east-north-up, base-station correction,
+// then demodulation (AC) or the DC fit downstream.
 //
 // # AC demodulation
 //
