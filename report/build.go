@@ -1,0 +1,327 @@
+package report
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"math/cmplx"
+
+	"undercurrent/inverse"
+	"undercurrent/inverse/route"
+)
+
+// Fit is one group's readings and their fit, as Build takes them.
+type Fit struct {
+	// Key is the group's value of the grouping column; empty when the run
+	// was not grouped.
+	Key string
+	// Problem holds the readings that were fitted (Points with Fields for
+	// DC, or Phasors for AC).
+	Problem *inverse.Problem
+	// Result is the fit (inverse.FitLines or FitStrengths); nil when the
+	// fit failed, with the reason in Err.
+	Result *inverse.Result
+	Err    error
+	// Dipole is true when the caller found the readings better explained
+	// by a point dipole (a magnetised object) than by a current.
+	Dipole bool
+}
+
+// BuildSettings tunes Build. A nil *BuildSettings or a zero field takes the
+// default given beside it.
+type BuildSettings struct {
+	// SensorHeight is the sensors' height above ground, m, used for cover
+	// when depths are below the sensors' mean height; 0 when unknown.
+	SensorHeight float64
+	// MinCover is the minimum depth of cover to check, m, and CoverCode
+	// the code or practice it comes from; 0 for no check.
+	MinCover  float64
+	CoverCode string
+	// StepK is route.Settings.StepK: 0 means 3.
+	StepK float64
+	// Noise is the reading noise the fits were given (inverse.Problem
+	// Sigma), nT; 0 when they estimated it. It is the yardstick for
+	// calling a group's fit poor: with 0 the median of the groups' own
+	// noise estimates is used when there are at least three groups.
+	Noise float64
+	// ProfileMax is the most readings per group kept for the report's
+	// plots; 0 means 240, negative keeps none.
+	ProfileMax int
+}
+
+// Build makes the result document from per-group fits: head supplies what
+// Build cannot know (Tool, Title, Site, Created, Inputs, Calibration,
+// BaseStation, Frame, Signal, Settings, Warnings) and is copied; Build
+// fills DepthReference, MinCover, Groups, Route and Findings.
+//
+// For each fit it records the sources (with spans, unidentifiable
+// quantities and a thinned profile of the readings against the fit), the
+// background, the fit statistics and, when the fit failed, did not converge
+// or cannot tell two numbers of conductors apart (BIC within 2 of the
+// chosen count: "not worth more than a bare mention", Kass & Raftery, J.
+// Am. Stat. Assoc. 90(430):773-795, 1995), why. The strongest source of
+// each group becomes a route.Station; route.Build then orders the groups
+// along the route and finds steps in current, shallow cover, poor fits and
+// dipole-like anomalies, which SetRoute takes into the document. With one
+// group there is no route but the cover and fit checks still run.
+//
+// Signal.Mode is set to AC when the problems carry phasors, DC otherwise,
+// keeping head's frequency and window. Build returns an error when fits is
+// empty, a fit has neither a result nor an error, or the route cannot be
+// built.
+func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
+	if len(fits) == 0 {
+		return nil, errors.New("report: no fits to report")
+	}
+	var bs BuildSettings
+	if set != nil {
+		bs = *set
+	}
+	if bs.ProfileMax == 0 {
+		bs.ProfileMax = 240
+	}
+	d := head
+	d.SchemaVersion = SchemaVersion
+	if d.Frame.Kind == "" {
+		d.Frame.Kind = FrameLocalENU
+	}
+	d.Groups, d.Route = nil, nil
+	d.Findings = append([]Finding{}, head.Findings...)
+	d.Warnings = append([]string(nil), head.Warnings...)
+
+	ac := false
+	for i, f := range fits {
+		if f.Problem == nil {
+			return nil, fmt.Errorf("report: fit %d (group %q) has no problem", i, f.Key)
+		}
+		if f.Result == nil && f.Err == nil {
+			return nil, fmt.Errorf("report: fit %d (group %q) has neither a result nor an error", i, f.Key)
+		}
+		ac = ac || f.Problem.Phasors != nil
+	}
+	if ac {
+		d.Signal.Mode = SignalAC
+	} else {
+		d.Signal = Signal{Mode: SignalDC}
+	}
+
+	// Depth reference: the fits' own, from the first that has one.
+	d.DepthReference = DepthReference{Kind: DepthBelowSensors, SensorHeight: bs.SensorHeight}
+	for _, f := range fits {
+		if f.Result != nil {
+			if f.Result.DepthReference == "ReferenceZ" {
+				d.DepthReference = DepthReference{Kind: DepthBelowGround, Z: f.Result.ReferenceZ}
+			} else {
+				d.DepthReference.Z = f.Result.ReferenceZ
+			}
+			break
+		}
+	}
+	d.MinCover = nil
+	if bs.MinCover > 0 {
+		d.MinCover = &MinCover{Depth: bs.MinCover, Code: bs.CoverCode}
+	}
+
+	refSigma := bs.Noise
+	if refSigma == 0 {
+		var sig []float64
+		for _, f := range fits {
+			if f.Result != nil && f.Result.Sigma > 0 {
+				sig = append(sig, f.Result.Sigma)
+			}
+		}
+		if len(sig) >= 3 {
+			refSigma = median(sig)
+		}
+	}
+
+	stations := make([]route.Station, 0, len(fits))
+	for _, f := range fits {
+		g, st := buildGroup(&f, ac, refSigma, bs.ProfileMax)
+		d.Groups = append(d.Groups, g)
+		stations = append(stations, st)
+	}
+	rs := &route.Settings{StepK: bs.StepK, MinCover: bs.MinCover, CoverCode: bs.CoverCode}
+	if d.DepthReference.Kind == DepthBelowSensors {
+		rs.SensorHeight = bs.SensorHeight
+	}
+	if refSigma == 0 {
+		rs.MaxReducedChi2 = -1
+	}
+	r, err := route.Build(stations, rs)
+	if err != nil {
+		return nil, fmt.Errorf("report: %w", err)
+	}
+	d.SetRoute(r)
+	if len(stations) < 2 {
+		d.Route = nil
+		for i := range d.Groups {
+			d.Groups[i].Chainage = nil
+		}
+	}
+	return &d, nil
+}
+
+// buildGroup converts one fit into the document's group and the route's
+// station (the strongest source is the one the route follows).
+func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int) (Group, route.Station) {
+	pts := f.Problem.Points
+	g := Group{Key: f.Key, Points: len(pts), Centroid: centroid(pts), Sources: []Source{}}
+	st := route.Station{Key: f.Key, Point: g.Centroid, AC: ac, Dipole: f.Dipole}
+	if f.Result == nil {
+		g.Problem = "the fit failed: " + f.Err.Error()
+		st.Problem = g.Problem
+		return g, st
+	}
+	res := f.Result
+	g.RMS = res.RMS
+	g.Background, g.BackgroundSigma = res.Background, res.BackgroundSigma
+	g.Chi2, g.DOF = res.Chi2, res.DOF
+	g.Status = res.Status.String()
+	// A stalled fit stopped where rounding allows no further reduction:
+	// at the minimum for practical purposes. Running out of iterations
+	// is a failure.
+	g.OK = (res.Status.Converged() || res.Status == inverse.Stalled) && len(res.Sources) > 0
+	g.Notes = append(g.Notes, res.Notes...)
+	for _, c := range res.Criteria {
+		g.Criteria = append(g.Criteria, Criterion{Count: c.Count, AIC: c.AIC, BIC: c.BIC, RSS: c.RSS, Chosen: c.Chosen})
+	}
+	for _, s := range res.Sources {
+		g.Sources = append(g.Sources, buildSource(s, pts, ac))
+	}
+	switch {
+	case len(res.Sources) == 0:
+		g.Problem = "no conductor was fitted"
+	case !g.OK:
+		g.Problem = "the fit did not converge (" + g.Status + ")"
+	default:
+		g.Problem = ambiguity(res.Criteria)
+	}
+	if f.Dipole && g.Problem == "" {
+		g.Problem = "a point dipole explains the readings better than a current"
+	}
+	if len(res.Sources) > 0 {
+		s := res.Sources[0]
+		st.Point, st.Dir = s.Point, s.Dir
+		st.Current, st.CurrentSigma = s.Current, s.CurrentSigma
+		st.Phase, st.PhaseSigma = s.Phase, s.PhaseSigma
+		st.Depth, st.DepthSigma = s.Depth, s.DepthSigma
+		if profileMax > 0 {
+			if p, err := buildProfile(f, profileMax); err == nil {
+				g.Profile = p
+			}
+		}
+	}
+	st.RMS = res.RMS
+	if refSigma > 0 && res.Sigma > 0 {
+		// Chi-square against the yardstick noise, so that a group fitting
+		// much worse than the others stands out.
+		st.Chi2 = res.Chi2 * (res.Sigma / refSigma) * (res.Sigma / refSigma)
+		st.DOF = res.DOF
+	}
+	st.OK = g.OK
+	if !f.Dipole {
+		st.Problem = g.Problem
+	}
+	return g, st
+}
+
+// ambiguity says when the number of conductors is not clear: another
+// count, not rejected by the fit, scores within 2 of the chosen one on BIC.
+func ambiguity(cs []inverse.ModelScore) string {
+	var chosen *inverse.ModelScore
+	for i := range cs {
+		if cs[i].Chosen {
+			chosen = &cs[i]
+		}
+	}
+	if chosen == nil {
+		return ""
+	}
+	for _, c := range cs {
+		if c.Count != chosen.Count && c.Rejected == "" && math.Abs(c.BIC-chosen.BIC) < 2 {
+			return fmt.Sprintf("%d and %d conductors fit about as well (BIC within 2)", min(c.Count, chosen.Count), max(c.Count, chosen.Count))
+		}
+	}
+	return ""
+}
+
+// buildSource converts one fitted source; pts are the group's readings,
+// whose extent along the source gives its span.
+func buildSource(s inverse.SourceEstimate, pts [][3]float64, ac bool) Source {
+	kind := s.Kind
+	if kind == "" {
+		kind = KindLine
+	}
+	out := Source{
+		Kind: kind, Point: s.Point, Direction: s.Dir,
+		Current: s.Current, CurrentSigma: s.CurrentSigma,
+		Depth: s.Depth, DepthSigma: s.DepthSigma,
+		Offset: s.Offset, OffsetSigma: s.OffsetSigma,
+		Azimuth: s.Azimuth, AzimuthSigma: s.AzimuthSigma,
+		Dip: s.Dip, DipSigma: s.DipSigma,
+		Notes: append([]string(nil), s.Notes...),
+	}
+	if ac {
+		ph, phs := s.Phase, s.PhaseSigma
+		out.Phase, out.PhaseSigma = &ph, &phs
+	}
+	id := s.Identifiable
+	for _, q := range []struct {
+		ok   bool
+		name string
+	}{{id.Current, "current"}, {id.Phase || !ac, "phase"}, {id.Depth, "depth"}, {id.Offset, "offset"}, {id.Azimuth, "azimuth"}, {id.Dip, "dip"}} {
+		if !q.ok {
+			out.Unidentifiable = append(out.Unidentifiable, q.name)
+		}
+	}
+	if len(pts) > 0 {
+		lo, hi := math.Inf(1), math.Inf(-1)
+		for _, p := range pts {
+			t := (p[0]-s.Point[0])*s.Dir[0] + (p[1]-s.Point[1])*s.Dir[1] + (p[2]-s.Point[2])*s.Dir[2]
+			lo, hi = math.Min(lo, t), math.Max(hi, t)
+		}
+		out.Span = [2]float64{lo, hi}
+	}
+	return out
+}
+
+// buildProfile keeps a thinned copy of the readings against the fit. For
+// AC it keeps the in-phase part: each phasor turned by minus the strongest
+// source's phase, real part.
+func buildProfile(f *Fit, max int) (*Profile, error) {
+	p, res := f.Problem, f.Result
+	s := res.Sources[0]
+	if p.Phasors == nil {
+		if len(res.Predicted) != len(p.Points) || len(p.Fields) != len(p.Points) {
+			return nil, errors.New("report: no predictions to plot")
+		}
+		return NewProfile(p.Points, p.Fields, res.Predicted, s.Point, s.Dir, ComponentDC, max)
+	}
+	if len(res.PredictedPhasors) != len(p.Points) || len(p.Phasors) != len(p.Points) {
+		return nil, errors.New("report: no predictions to plot")
+	}
+	rot := cmplx.Rect(1, -s.Phase*math.Pi/180)
+	re := func(v [][3]complex128) [][3]float64 {
+		out := make([][3]float64, len(v))
+		for i, b := range v {
+			for k := range 3 {
+				out[i][k] = real(b[k] * rot)
+			}
+		}
+		return out
+	}
+	return NewProfile(p.Points, re(p.Phasors), re(res.PredictedPhasors), s.Point, s.Dir, ComponentACInPhase, max)
+}
+
+func centroid(pts [][3]float64) [3]float64 {
+	var c [3]float64
+	for _, p := range pts {
+		c[0], c[1], c[2] = c[0]+p[0], c[1]+p[1], c[2]+p[2]
+	}
+	if n := float64(len(pts)); n > 0 {
+		c = [3]float64{c[0] / n, c[1] / n, c[2] / n}
+	}
+	return c
+}
+
