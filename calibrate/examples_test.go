@@ -75,10 +75,10 @@ func ExampleTilt() {
 	// 20 000 nT north and 45 000 nT down; tilt correction restores it.
 	const d = math.Pi / 180
 	s := &ingest.Samples{Source: "kestrel-moor-T1.csv", Time: []float64{0},
-		Bx:    []float64{20000*math.Cos(10*d) - 45000*math.Sin(10*d)},
-		By:    []float64{0},
-		Bz:    []float64{20000*math.Sin(10*d) + 45000*math.Cos(10*d)},
-		Roll:  []float64{0}, Pitch: []float64{10}, Yaw: []float64{0},
+		Bx:   []float64{20000*math.Cos(10*d) - 45000*math.Sin(10*d)},
+		By:   []float64{0},
+		Bz:   []float64{20000*math.Sin(10*d) + 45000*math.Cos(10*d)},
+		Roll: []float64{0}, Pitch: []float64{10}, Yaw: []float64{0},
 		Frame: ingest.FrameSensor}
 	if err := calibrate.Tilt(s, nil); err != nil {
 		fmt.Println(err)
