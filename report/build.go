@@ -324,4 +324,3 @@ func centroid(pts [][3]float64) [3]float64 {
 	}
 	return c
 }
-
