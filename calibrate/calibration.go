@@ -12,6 +12,8 @@ import (
 	"os"
 	"strings"
 	"time"
+
+	"undercurrent/ingest"
 )
 
 // Version is the calibration file format version this package writes and
@@ -195,7 +197,7 @@ func (c *Calibration) Save(path string) error {
 		return fmt.Errorf("calibrate: %s: %w", path, err)
 	}
 	data = append(data, '\n')
-	return writeFileAtomic(path, func(w io.Writer) error {
+	return ingest.WriteFileAtomic(path, func(w io.Writer) error {
 		_, err := w.Write(data)
 		return err
 	})
