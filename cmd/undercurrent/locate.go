@@ -1,0 +1,957 @@
+package main
+
+import (
+	"bufio"
+	"context"
+	"crypto/sha256"
+	"encoding/hex"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"math/cmplx"
+	"os"
+	"path/filepath"
+	"runtime"
+	"runtime/debug"
+	"sort"
+	"strconv"
+	"strings"
+	"sync"
+	"time"
+
+	"github.com/schollz/progressbar/v3"
+	"github.com/spf13/pflag"
+	"golang.org/x/term"
+
+	"undercurrent/calibrate"
+	"undercurrent/ingest"
+	"undercurrent/inverse"
+	"undercurrent/inverse/route"
+	"undercurrent/report"
+)
+
+// locateOptions are the settings of one locate run, from flags.
+type locateOptions struct {
+	calibration  string
+	base         string
+	freq         float64
+	window       float64
+	count        string
+	groupBy      string
+	json         bool
+	out          string
+	minCover     float64
+	coverCode    string
+	referenceZ   float64
+	hasRefZ      bool
+	sensorHeight float64
+	noise        float64
+	robust       bool
+	despike      bool
+	stepK        float64
+	columns      []string
+	units        []string
+	title        string
+	workers      int
+	maxCount     int
+
+	// set by check
+	nCount int // 0 = auto
+	// extra names allowed in an existing output directory (the demo's log)
+	keepNames []string
+	// given lists the flags the user set, for the document's settings
+	given map[string]string
+}
+
+// resultFiles are the files locate writes into its output directory.
+var resultFiles = []string{"results.json", "results.csv", "route.geojson", "report.html"}
+
+func (o *locateOptions) setFlags(fs *pflag.FlagSet) {
+	fs.StringVar(&o.calibration, "calibration", "", "apply the sensor calibration in `CAL.json` (from undercurrent calibrate)")
+	fs.StringVar(&o.base, "base", "", "subtract the diurnal variation recorded by the base station log `BASE` (any log format, IAGA-2002 too)")
+	fs.Float64Var(&o.freq, "freq", 0, "demodulate the AC field at `HZ` (50, 60, 16.7...) and fit RMS currents with phase; without it the DC field is fitted")
+	fs.Float64Var(&o.window, "window", 0, "AC demodulation window, `S` seconds (default ten cycles)")
+	fs.StringVar(&o.count, "count", "auto", "number of line conductors per fit, `N` (1-4) or auto")
+	fs.StringVar(&o.groupBy, "group-by", "", "fit each value of column `COL` separately (a traverse, a sensor, a time window) and build the along-route profile from the groups")
+	fs.BoolVar(&o.json, "json", false, "print the result document (JSON) on stdout")
+	fs.StringVarP(&o.out, "output", "o", "", "write results.json, results.csv, route.geojson and report.html into `DIR`")
+	fs.Float64Var(&o.minCover, "min-cover", 0, "report cover shallower than `M` metres (needs a ground reference: --sensor-height or --reference-z)")
+	fs.StringVar(&o.coverCode, "cover-code", "", "the code or practice the minimum cover comes from, quoted in the report (\"NEC Table 300.5\")")
+	fs.Float64Var(&o.referenceZ, "reference-z", 0, "report depths below the ground surface at up = `Z` metres, instead of below the sensors' mean height")
+	fs.Float64Var(&o.sensorHeight, "sensor-height", 0, "the sensors were carried `H` metres above the ground (cover = depth - H)")
+	fs.Float64Var(&o.noise, "noise", 0, "reading noise per axis, `NT` nanotesla (default: estimated from the fits)")
+	fs.BoolVar(&o.robust, "robust", false, "down-weight outlying readings (Huber weights)")
+	fs.BoolVar(&o.despike, "despike", false, "remove spikes (Hampel filter) before fitting")
+	fs.Float64Var(&o.stepK, "step-k", 0, "report a step in current when it exceeds `K` standard deviations (default 3)")
+	fs.StringSliceVar(&o.columns, "column", nil, "map a column: `CANON=NAME` (bx=Bx_uT, group=traverse); repeatable")
+	fs.StringSliceVar(&o.units, "unit", nil, "unit of a column: `CANON=UNIT` (bx=uT, time=ms); repeatable")
+	fs.StringVar(&o.title, "title", "", "title of the report (default: the site named in the log, or the log's name)")
+	fs.IntVar(&o.workers, "workers", 0, "fit `N` groups at a time (default: the number of CPUs)")
+}
+
+// check validates the options and records the ones given.
+func (o *locateOptions) check(fs *pflag.FlagSet) error {
+	switch c := strings.ToLower(strings.TrimSpace(o.count)); c {
+	case "auto", "":
+		o.nCount = 0
+	default:
+		n, err := strconv.Atoi(c)
+		if err != nil || n < 1 || n > 4 {
+			return usageErrorf("--count %q: want 1, 2, 3, 4 or auto", o.count)
+		}
+		o.nCount = n
+	}
+	if o.freq < 0 || math.IsNaN(o.freq) || math.IsInf(o.freq, 0) {
+		return usageErrorf("--freq %g: want a positive frequency in Hz", o.freq)
+	}
+	if o.window != 0 && o.freq == 0 {
+		return usageErrorf("--window needs --freq: windows are for AC demodulation")
+	}
+	if o.window < 0 || math.IsNaN(o.window) || math.IsInf(o.window, 0) {
+		return usageErrorf("--window %g: want a positive length in seconds", o.window)
+	}
+	if o.minCover < 0 || math.IsNaN(o.minCover) || math.IsInf(o.minCover, 0) {
+		return usageErrorf("--min-cover %g: want a depth in metres >= 0", o.minCover)
+	}
+	if o.sensorHeight < 0 || math.IsNaN(o.sensorHeight) || math.IsInf(o.sensorHeight, 0) {
+		return usageErrorf("--sensor-height %g: want a height in metres >= 0", o.sensorHeight)
+	}
+	if o.noise < 0 || math.IsNaN(o.noise) || math.IsInf(o.noise, 0) {
+		return usageErrorf("--noise %g: want a noise level in nT >= 0", o.noise)
+	}
+	if o.stepK < 0 || math.IsNaN(o.stepK) {
+		return usageErrorf("--step-k %g: want a positive number of standard deviations", o.stepK)
+	}
+	if o.workers < 0 {
+		return usageErrorf("--workers %d: want a positive number", o.workers)
+	}
+	if math.IsNaN(o.referenceZ) || math.IsInf(o.referenceZ, 0) {
+		return usageErrorf("--reference-z %g: want a finite height in metres", o.referenceZ)
+	}
+	o.hasRefZ = fs != nil && fs.Changed("reference-z")
+	if o.hasRefZ && fs.Changed("sensor-height") {
+		return usageErrorf("give --reference-z (depths below the ground at that height) or --sensor-height (depths below the sensors, cover from their height), not both")
+	}
+	hasHeight := o.sensorHeight > 0 || fs != nil && fs.Changed("sensor-height")
+	if o.minCover > 0 && !o.hasRefZ && !hasHeight {
+		return usageErrorf("--min-cover needs to know where the ground is: add --sensor-height H (sensors carried H m above ground) or --reference-z Z (ground at up = Z)")
+	}
+	if o.coverCode != "" && o.minCover == 0 {
+		return usageErrorf("--cover-code names where --min-cover comes from; give --min-cover too")
+	}
+	if o.groupBy != "" {
+		for _, c := range o.columns {
+			if k, _, _ := strings.Cut(c, "="); strings.EqualFold(strings.TrimSpace(k), ingest.ColGroup) && o.groupBy != ingest.ColGroup {
+				return usageErrorf("--group-by %s and --column %s both say which column holds the groups; give one", o.groupBy, c)
+			}
+		}
+	}
+	if o.out != "" {
+		if err := checkOutDir(o.out, o.keepNames); err != nil {
+			return err
+		}
+	}
+	o.given = map[string]string{}
+	if fs != nil {
+		fs.Visit(func(f *pflag.Flag) {
+			if f.Name != "json" && f.Name != "output" && f.Name != "workers" {
+				o.given[f.Name] = f.Value.String()
+			}
+		})
+	}
+	return nil
+}
+
+func init() {
+	o := &locateOptions{}
+	register(&command{
+		name:    "locate",
+		usage:   "[flags] LOG...",
+		summary: "estimate where conductors run, how deep, and the current they carry",
+		long: `Locate reads one or more magnetometer logs (CSV, Arrow IPC, Parquet or
+IAGA-2002; see "undercurrent inspect"), applies the sensor calibration and
+the base-station correction when given, demodulates the AC field when --freq
+is given, and fits line conductors to the readings: where each runs, how deep
+it lies (below the sensors' mean height, or below the ground with
+--reference-z), and its current with one-sigma uncertainties.
+
+With --group-by it fits each group (a traverse, a sensor, a time window)
+separately and builds the profile along the route: current, depth and
+position with chainage measured along the fitted route, and findings for a
+crew: steps in current (current leaving the conductor, bracketed between the
+groups that show it), cover shallower than --min-cover, fits that are poor
+or ambiguous.
+
+With -o DIR it writes results.json (the result document), results.csv,
+route.geojson and report.html (the crew report) into DIR; the directory is
+written whole or not at all. --json prints the result document on stdout.
+Without either it prints a summary.
+
+The estimates are not a verified locate: confirm before excavation by
+approved methods, treat every conductor as live; local codes and licensed
+practice prevail.
+
+Examples:
+  undercurrent locate --group-by group survey.csv
+  undercurrent locate --base base.min --calibration cal.json --group-by group survey.csv -o results
+  undercurrent locate --freq 50 --window 0.2 --group-by group --sensor-height 0.3 --min-cover 0.6 --cover-code "UK 11 kV practice" walk.parquet -o results
+  undercurrent locate --count 2 --json line7.csv > line7.json`,
+		setFlags: o.setFlags,
+		run: func(ctx context.Context, fs *pflag.FlagSet, args []string, stdout, stderr io.Writer) error {
+			if len(args) == 0 {
+				return usageErrorf("no LOG files given")
+			}
+			if err := o.check(fs); err != nil {
+				return err
+			}
+			start := time.Now()
+			doc, err := runLocate(ctx, o, args, progressOn(stderr))
+			if err != nil {
+				return err
+			}
+			if o.out != "" {
+				if err := writeResults(o.out, doc, o.keepNames); err != nil {
+					return err
+				}
+			}
+			if o.json {
+				return report.WriteJSON(stdout, doc)
+			}
+			printSummary(stdout, doc, time.Since(start))
+			if o.out != "" {
+				fmt.Fprintf(stdout, "results in %s: %s\n", o.out, strings.Join(resultFiles, ", "))
+			}
+			return nil
+		},
+	})
+}
+
+// progressOn returns a progress-bar writer: stderr when it is a terminal,
+// nil otherwise (quiet).
+func progressOn(stderr io.Writer) io.Writer {
+	f, ok := stderr.(*os.File)
+	if !ok || !term.IsTerminal(int(f.Fd())) {
+		return nil
+	}
+	return stderr
+}
+
+// group is the readings of one group, ready to fit.
+type group struct {
+	key    string
+	points [][3]float64
+	fields [][3]float64    // DC
+	phase  [][3]complex128 // AC
+	res    *inverse.Result // fit
+	err    error           // fit failure
+}
+
+// survey is what runLocate has read and corrected.
+type survey struct {
+	doc      *report.Document
+	groups   []*group
+	ac       bool
+	warnings []string
+}
+
+// runLocate reads, corrects, fits and analyses; progress, when not nil,
+// receives a progress bar.
+func runLocate(ctx context.Context, o *locateOptions, logs []string, progress io.Writer) (*report.Document, error) {
+	sv, err := readSurvey(o, logs)
+	if err != nil {
+		return nil, err
+	}
+	if err := fitGroups(ctx, o, sv, progress); err != nil {
+		return nil, err
+	}
+	return buildDocument(o, sv)
+}
+
+// readSurvey reads the logs, applies the corrections, demodulates and
+// splits the readings into groups.
+func readSurvey(o *locateOptions, logs []string) (*survey, error) {
+	doc := &report.Document{
+		SchemaVersion: report.SchemaVersion,
+		Tool:          report.Tool{Name: "undercurrent", Version: toolVersion()},
+		Created:       time.Now().UTC().Format(time.RFC3339),
+		Frame:         report.Frame{Kind: report.FrameLocalENU},
+		Settings:      o.given,
+		Findings:      []report.Finding{},
+	}
+	sv := &survey{doc: doc, ac: o.freq > 0}
+	var cal *calibrate.Calibration
+	if o.calibration != "" {
+		var err error
+		if cal, err = calibrate.Load(o.calibration); err != nil {
+			return nil, err
+		}
+		doc.Calibration = &report.Correction{File: o.calibration, Summary: cal.Summary()}
+		doc.Inputs = append(doc.Inputs, fileInput("calibration", o.calibration, 0))
+	}
+	var base *ingest.Samples
+	if o.base != "" {
+		var err error
+		if base, err = ingest.ReadSamples(o.base, ingest.WithAllowMissing(true)); err != nil {
+			return nil, err
+		}
+		doc.Inputs = append(doc.Inputs, fileInput("base", o.base, base.Len()))
+	}
+	var opts []ingest.Option
+	if len(o.columns) > 0 {
+		opts = append(opts, ingest.WithColumns(o.columns...))
+	}
+	if o.groupBy != "" && o.groupBy != ingest.ColGroup {
+		opts = append(opts, ingest.WithColumns(ingest.ColGroup+"="+o.groupBy))
+	}
+	if len(o.units) > 0 {
+		opts = append(opts, ingest.WithUnits(o.units...))
+	}
+	index := map[string]*group{}
+	var baseNotes []string
+	for _, path := range logs {
+		s, err := ingest.ReadSamples(path, opts...)
+		if err != nil {
+			return nil, err
+		}
+		if s.X == nil || s.Y == nil || s.Z == nil {
+			return nil, fmt.Errorf("%s has no positions: locate needs x, y, z (or lat, lon, height) columns; map them with --column", path)
+		}
+		if o.groupBy != "" && s.Group == nil {
+			return nil, fmt.Errorf("%s has no column %q to group by (see \"undercurrent inspect %s\" for its columns)", path, o.groupBy, path)
+		}
+		if err := sameOrigin(doc, s); err != nil {
+			return nil, err
+		}
+		if doc.Site == "" {
+			doc.Site = s.Meta["site"]
+		}
+		if cal != nil {
+			if err := cal.Apply(s); err != nil {
+				return nil, fmt.Errorf("%s: %w", path, err)
+			}
+		}
+		if s.Frame == ingest.FrameSensor {
+			if err := calibrate.Tilt(s, nil); err != nil {
+				return nil, err
+			}
+		}
+		if o.despike {
+			rep, err := calibrate.Despike(s, nil)
+			if err != nil {
+				return nil, fmt.Errorf("%s: %w", path, err)
+			}
+			if rep.Removed > 0 {
+				sv.warnings = append(sv.warnings, fmt.Sprintf("%s: removed %d spikes of %d readings", path, rep.Removed, rep.Removed+rep.Kept))
+			}
+		}
+		if base != nil {
+			rep, err := calibrate.BaseCorrect(s, base, nil)
+			if err != nil {
+				return nil, err
+			}
+			baseNotes = append(baseNotes, baseSummary(path, rep))
+			for _, w := range rep.Warnings {
+				sv.warnings = append(sv.warnings, path+": "+w)
+			}
+		}
+		doc.Inputs = append(doc.Inputs, fileInput("survey", path, s.Len()))
+		if err := addReadings(o, sv, index, s); err != nil {
+			return nil, err
+		}
+	}
+	if base != nil {
+		doc.BaseStation = &report.Correction{File: o.base, Summary: strings.Join(baseNotes, "; ")}
+	}
+	if len(sv.groups) == 0 {
+		return nil, errors.New("no readings to fit")
+	}
+	if doc.Title == "" {
+		doc.Title = o.title
+	}
+	if doc.Title == "" {
+		if doc.Site != "" {
+			doc.Title = doc.Site
+		} else {
+			doc.Title = strings.Join(logs, ", ")
+		}
+	}
+	return sv, nil
+}
+
+// addReadings demodulates s when asked and adds its readings to their
+// groups (in order of first appearance).
+func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *ingest.Samples) error {
+	get := func(key string) *group {
+		if o.groupBy == "" {
+			key = ""
+		}
+		g := index[key]
+		if g == nil {
+			g = &group{key: key}
+			index[key] = g
+			sv.groups = append(sv.groups, g)
+		}
+		return g
+	}
+	if !sv.ac {
+		for i := range s.Len() {
+			key := ""
+			if s.Group != nil {
+				key = s.Group[i]
+			}
+			g := get(key)
+			g.points = append(g.points, [3]float64{s.X[i], s.Y[i], s.Z[i]})
+			g.fields = append(g.fields, [3]float64{s.Bx[i], s.By[i], s.Bz[i]})
+		}
+		return nil
+	}
+	res, err := calibrate.Demodulate(s, &calibrate.DemodSettings{Freq: o.freq, Window: o.window})
+	if err != nil {
+		return err
+	}
+	for _, w := range res.Warnings {
+		sv.warnings = append(sv.warnings, s.Source+": "+w)
+	}
+	if len(res.Windows) == 0 {
+		return fmt.Errorf("%s: no complete demodulation window: the log (or each group) is shorter than the window", s.Source)
+	}
+	if sv.doc.Signal.WindowS == 0 && len(res.Windows) > 0 {
+		w := res.Windows[0]
+		win := o.window
+		if win == 0 {
+			win = 10 / o.freq
+		}
+		_ = w
+		sv.doc.Signal = report.Signal{Mode: report.SignalAC, FrequencyHz: res.Freq, WindowS: win}
+	}
+	for _, w := range res.Windows {
+		g := get(w.Group)
+		g.points = append(g.points, w.Pos)
+		g.phase = append(g.phase, w.B)
+	}
+	return nil
+}
+
+// fitGroups fits every group, a few at a time.
+func fitGroups(ctx context.Context, o *locateOptions, sv *survey, progress io.Writer) error {
+	set := &inverse.Settings{Count: o.nCount, Robust: o.robust}
+	if o.hasRefZ {
+		z := o.referenceZ
+		set.ReferenceZ = &z
+	}
+	workers := o.workers
+	if workers == 0 {
+		workers = runtime.GOMAXPROCS(0)
+	}
+	workers = min(workers, len(sv.groups))
+	var bar *progressbar.ProgressBar
+	if progress != nil && len(sv.groups) > 1 {
+		bar = progressbar.NewOptions(len(sv.groups),
+			progressbar.OptionSetWriter(progress),
+			progressbar.OptionSetDescription("fitting groups"),
+			progressbar.OptionShowCount(),
+			progressbar.OptionClearOnFinish(),
+			progressbar.OptionThrottle(100*time.Millisecond))
+	}
+	jobs := make(chan *group)
+	var wg sync.WaitGroup
+	var mu sync.Mutex
+	for range workers {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for g := range jobs {
+				p := &inverse.Problem{Points: g.points, Sigma: o.noise}
+				if sv.ac {
+					p.Phasors = g.phase
+				} else {
+					p.Fields = g.fields
+				}
+				g.res, g.err = inverse.FitLines(p, set)
+				if bar != nil {
+					mu.Lock()
+					bar.Add(1)
+					mu.Unlock()
+				}
+			}
+		}()
+	}
+	var err error
+feed:
+	for _, g := range sv.groups {
+		select {
+		case jobs <- g:
+		case <-ctx.Done():
+			err = ctx.Err()
+			break feed
+		}
+	}
+	close(jobs)
+	wg.Wait()
+	if bar != nil {
+		bar.Finish()
+	}
+	return err
+}
+
+// buildDocument turns the fits into the result document and runs the
+// along-route analysis.
+func buildDocument(o *locateOptions, sv *survey) (*report.Document, error) {
+	doc := sv.doc
+	if !sv.ac {
+		doc.Signal = report.Signal{Mode: report.SignalDC}
+	}
+	if o.hasRefZ {
+		doc.DepthReference = report.DepthReference{Kind: report.DepthBelowGround, Z: o.referenceZ}
+	} else {
+		doc.DepthReference = report.DepthReference{Kind: report.DepthBelowSensors, SensorHeight: o.sensorHeight}
+	}
+	if o.minCover > 0 {
+		doc.MinCover = &report.MinCover{Depth: o.minCover, Code: o.coverCode}
+	}
+	// A reference noise for judging each fit: the given reading noise, or
+	// the median of the groups' own residual estimates, so that a group
+	// fitting much worse than the others stands out.
+	refSigma := o.noise
+	if refSigma == 0 {
+		var sig []float64
+		for _, g := range sv.groups {
+			if g.err == nil && g.res.Sigma > 0 {
+				sig = append(sig, g.res.Sigma)
+			}
+		}
+		if len(sig) >= 3 {
+			sort.Float64s(sig)
+			refSigma = sig[len(sig)/2]
+		}
+	}
+	stations := make([]route.Station, 0, len(sv.groups))
+	for _, g := range sv.groups {
+		gd, st := groupResult(g, sv.ac, refSigma)
+		doc.Groups = append(doc.Groups, gd)
+		stations = append(stations, st)
+	}
+	if len(stations) >= 2 {
+		rs := &route.Settings{StepK: o.stepK, MinCover: o.minCover, CoverCode: o.coverCode}
+		if !o.hasRefZ {
+			rs.SensorHeight = o.sensorHeight
+		}
+		if refSigma == 0 {
+			rs.MaxReducedChi2 = -1
+		}
+		r, err := route.Build(stations, rs)
+		if err != nil {
+			return nil, err
+		}
+		doc.SetRoute(r)
+	} else {
+		for _, st := range stations {
+			if !st.OK || st.Problem != "" {
+				doc.Findings = append(doc.Findings, report.Finding{
+					Kind: string(route.KindPoorFit), Severity: report.SeverityCaution,
+					Position: st.Point, Groups: []string{st.Key},
+					Message: "The fit is poor or ambiguous: " + orText(st.Problem, "it failed") + ".",
+				})
+			}
+		}
+	}
+	doc.Warnings = append(doc.Warnings, sv.warnings...)
+	if err := doc.Validate(); err != nil {
+		return nil, fmt.Errorf("internal error: the result document is not valid: %w", err)
+	}
+	return doc, nil
+}
+
+func orText(s, alt string) string {
+	if s == "" {
+		return alt
+	}
+	return s
+}
+
+// groupResult converts one group's fit into the document's group and the
+// route's station (the strongest source is the one the route follows).
+func groupResult(g *group, ac bool, refSigma float64) (report.Group, route.Station) {
+	gd := report.Group{Key: g.key, Points: len(g.points), Centroid: centroid(g.points), Sources: []report.Source{}}
+	st := route.Station{Key: g.key, Point: gd.Centroid, AC: ac}
+	if g.err != nil {
+		gd.Problem = "the fit failed: " + g.err.Error()
+		st.Problem = gd.Problem
+		return gd, st
+	}
+	res := g.res
+	gd.RMS = res.RMS
+	gd.Background, gd.BackgroundSigma = res.Background, res.BackgroundSigma
+	gd.Chi2, gd.DOF = res.Chi2, res.DOF
+	gd.Status = res.Status.String()
+	// A fit that stalled has stopped where rounding leaves no further
+	// reduction: at the minimum for practical purposes, with tolerances
+	// near machine precision. Only running out of iterations is a failure.
+	gd.OK = (res.Status.Converged() || res.Status == inverse.Stalled) && len(res.Sources) > 0
+	gd.Notes = append(gd.Notes, res.Notes...)
+	for _, c := range res.Criteria {
+		gd.Criteria = append(gd.Criteria, report.Criterion{Count: c.Count, AIC: c.AIC, BIC: c.BIC, RSS: c.RSS, Chosen: c.Chosen})
+	}
+	for _, s := range res.Sources {
+		gd.Sources = append(gd.Sources, sourceResult(s, g.points, ac))
+	}
+	if !gd.OK {
+		gd.Problem = "the fit did not converge (" + gd.Status + ")"
+	} else if amb := ambiguity(res.Criteria); amb != "" {
+		gd.Problem = amb
+	}
+	if len(res.Sources) > 0 {
+		s := res.Sources[0]
+		st.Point, st.Dir = s.Point, s.Dir
+		st.Current, st.CurrentSigma = s.Current, s.CurrentSigma
+		st.Phase, st.PhaseSigma = s.Phase, s.PhaseSigma
+		st.Depth, st.DepthSigma = s.Depth, s.DepthSigma
+		if p, err := groupProfile(g, res, ac); err == nil {
+			gd.Profile = p
+		}
+	}
+	st.RMS = res.RMS
+	if refSigma > 0 && res.Sigma > 0 {
+		st.Chi2 = res.Chi2 * (res.Sigma / refSigma) * (res.Sigma / refSigma)
+		st.DOF = res.DOF
+	}
+	st.OK = gd.OK
+	st.Problem = gd.Problem
+	return gd, st
+}
+
+// ambiguity says when the number of conductors is not clear: another count
+// scores within 2 of the chosen one on the criterion used (BIC), a
+// difference usually read as "not worth more than a bare mention" (Kass &
+// Raftery, J. Am. Stat. Assoc. 90(430):773-795, 1995).
+func ambiguity(cs []inverse.ModelScore) string {
+	var chosen *inverse.ModelScore
+	for i := range cs {
+		if cs[i].Chosen {
+			chosen = &cs[i]
+		}
+	}
+	if chosen == nil {
+		return ""
+	}
+	for _, c := range cs {
+		if c.Count != chosen.Count && c.Rejected == "" && math.Abs(c.BIC-chosen.BIC) < 2 {
+			return fmt.Sprintf("%d and %d conductors fit about as well", min(c.Count, chosen.Count), max(c.Count, chosen.Count))
+		}
+	}
+	return ""
+}
+
+// sourceResult converts one fitted source.
+func sourceResult(s inverse.SourceEstimate, pts [][3]float64, ac bool) report.Source {
+	kind := s.Kind
+	if kind == "" {
+		kind = report.KindLine
+	}
+	out := report.Source{
+		Kind: kind, Point: s.Point, Direction: s.Dir,
+		Current: s.Current, CurrentSigma: s.CurrentSigma,
+		Depth: s.Depth, DepthSigma: s.DepthSigma,
+		Offset: s.Offset, OffsetSigma: s.OffsetSigma,
+		Azimuth: s.Azimuth, AzimuthSigma: s.AzimuthSigma,
+		Dip: s.Dip, DipSigma: s.DipSigma,
+		Notes: append([]string(nil), s.Notes...),
+	}
+	if ac {
+		ph, phs := s.Phase, s.PhaseSigma
+		out.Phase, out.PhaseSigma = &ph, &phs
+	}
+	id := s.Identifiable
+	for _, q := range []struct {
+		ok   bool
+		name string
+	}{{id.Current, "current"}, {id.Phase || !ac, "phase"}, {id.Depth, "depth"}, {id.Offset, "offset"}, {id.Azimuth, "azimuth"}, {id.Dip, "dip"}} {
+		if !q.ok {
+			out.Unidentifiable = append(out.Unidentifiable, q.name)
+		}
+	}
+	lo, hi := math.Inf(1), math.Inf(-1)
+	for _, p := range pts {
+		t := (p[0]-s.Point[0])*s.Dir[0] + (p[1]-s.Point[1])*s.Dir[1] + (p[2]-s.Point[2])*s.Dir[2]
+		lo, hi = math.Min(lo, t), math.Max(hi, t)
+	}
+	if len(pts) > 0 {
+		out.Span = [2]float64{lo, hi}
+	}
+	return out
+}
+
+// profileMax is the most readings kept per group for the report's plots.
+const profileMax = 240
+
+// groupProfile keeps a thinned copy of the readings against the fit, for
+// the report's plots. For AC the in-phase part is plotted: each phasor
+// turned by minus the strongest source's phase, real part.
+func groupProfile(g *group, res *inverse.Result, ac bool) (*report.Profile, error) {
+	s := res.Sources[0]
+	if !ac {
+		if len(res.Predicted) != len(g.points) {
+			return nil, errors.New("no predictions")
+		}
+		return report.NewProfile(g.points, g.fields, res.Predicted, s.Point, s.Dir, report.ComponentDC, profileMax)
+	}
+	if len(res.PredictedPhasors) != len(g.points) {
+		return nil, errors.New("no predictions")
+	}
+	rot := cmplx.Rect(1, -s.Phase*math.Pi/180)
+	re := func(v [][3]complex128) [][3]float64 {
+		out := make([][3]float64, len(v))
+		for i, b := range v {
+			for k := range 3 {
+				out[i][k] = real(b[k] * rot)
+			}
+		}
+		return out
+	}
+	return report.NewProfile(g.points, re(g.phase), re(res.PredictedPhasors), s.Point, s.Dir, report.ComponentACInPhase, profileMax)
+}
+
+func centroid(pts [][3]float64) [3]float64 {
+	var c [3]float64
+	for _, p := range pts {
+		c[0], c[1], c[2] = c[0]+p[0], c[1]+p[1], c[2]+p[2]
+	}
+	if n := float64(len(pts)); n > 0 {
+		c = [3]float64{c[0] / n, c[1] / n, c[2] / n}
+	}
+	return c
+}
+
+// sameOrigin records the first geo-referenced log's origin and refuses logs
+// about another origin, whose local coordinates would not agree.
+func sameOrigin(doc *report.Document, s *ingest.Samples) error {
+	if s.Origin == nil {
+		return nil
+	}
+	o := &report.Origin{Lat: s.Origin.Lat, Lon: s.Origin.Lon, H: s.Origin.H}
+	if doc.Frame.Origin == nil {
+		doc.Frame.Origin = o
+		return nil
+	}
+	if *doc.Frame.Origin != *o {
+		return fmt.Errorf("%s: local positions are about origin (%.7f, %.7f, %.2f m), the earlier logs' about (%.7f, %.7f, %.2f m): convert them to one origin first (undercurrent convert)",
+			s.Source, o.Lat, o.Lon, o.H, doc.Frame.Origin.Lat, doc.Frame.Origin.Lon, doc.Frame.Origin.H)
+	}
+	return nil
+}
+
+// baseSummary says in one line what the base correction did to one log.
+func baseSummary(path string, r *calibrate.BaseReport) string {
+	s := fmt.Sprintf("%s: departures up to %.1f/%.1f/%.1f nT (east/north/up) removed", path, r.MaxAbs[0], r.MaxAbs[1], r.MaxAbs[2])
+	if r.Outside > 0 {
+		s += fmt.Sprintf("; %d readings outside the base record", r.Outside)
+	}
+	return s
+}
+
+// fileInput describes an input file with its SHA-256.
+func fileInput(role, path string, rows int) report.Input {
+	in := report.Input{Role: role, Path: path, Rows: rows}
+	if f, err := os.Open(path); err == nil {
+		h := sha256.New()
+		if _, err := io.Copy(h, f); err == nil {
+			in.SHA256 = hex.EncodeToString(h.Sum(nil))
+		}
+		f.Close()
+	}
+	return in
+}
+
+func toolVersion() string {
+	if bi, ok := debug.ReadBuildInfo(); ok && bi.Main.Version != "" {
+		return bi.Main.Version
+	}
+	return "(devel)"
+}
+
+// printSummary prints the groups and findings for a person.
+func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
+	ok, readings := 0, 0
+	for _, g := range doc.Groups {
+		readings += g.Points
+		if g.OK && g.Problem == "" {
+			ok++
+		}
+	}
+	unit := "readings"
+	if doc.Signal.Mode == report.SignalAC {
+		unit = "AC windows"
+	}
+	fmt.Fprintf(w, "fitted %d group(s), %d %s, in %.2f s: %d sound, %d poor or ambiguous\n",
+		len(doc.Groups), readings, unit, took.Seconds(), ok, len(doc.Groups)-ok)
+	ref := "below the sensors' mean height"
+	if doc.DepthReference.Kind == report.DepthBelowGround {
+		ref = fmt.Sprintf("below the ground at up = %g m", doc.DepthReference.Z)
+	}
+	fmt.Fprintf(w, "depths are %s; currents %s, one-sigma uncertainties\n", ref, map[bool]string{true: "RMS with phase", false: "DC"}[doc.Signal.Mode == report.SignalAC])
+	fmt.Fprintf(w, "%-8s %10s %18s %16s %9s\n", "group", "chainage", "current (A)", "depth (m)", "rms (nT)")
+	for _, g := range doc.Groups {
+		key := g.Key
+		if key == "" {
+			key = "(all)"
+		}
+		ch := "-"
+		if g.Chainage != nil {
+			ch = fmt.Sprintf("%.1f m", *g.Chainage)
+		}
+		if len(g.Sources) == 0 {
+			fmt.Fprintf(w, "%-8s %10s %18s %16s %9.3g  %s\n", key, ch, "-", "-", g.RMS, g.Problem)
+			continue
+		}
+		for i, s := range g.Sources {
+			k := key
+			if i > 0 {
+				k, ch = "", ""
+			}
+			cur := fmt.Sprintf("%.3g ± %.2g", s.Current, s.CurrentSigma)
+			if s.Phase != nil {
+				cur = fmt.Sprintf("%.3g∠%.0f° ± %.2g", s.Current, *s.Phase, s.CurrentSigma)
+			}
+			note := ""
+			if i == 0 && g.Problem != "" {
+				note = "  " + g.Problem
+			}
+			fmt.Fprintf(w, "%-8s %10s %18s %16s %9.3g%s\n", k, ch, cur, fmt.Sprintf("%.2f ± %.2g", s.Depth, s.DepthSigma), g.RMS, note)
+		}
+	}
+	if len(doc.Findings) == 0 {
+		fmt.Fprintln(w, "findings: none")
+	} else {
+		fmt.Fprintln(w, "findings:")
+		for _, f := range doc.Findings {
+			fmt.Fprintf(w, "  %-8s %s\n", f.Severity, f.Message)
+		}
+	}
+	for _, wn := range doc.Warnings {
+		fmt.Fprintf(w, "warning: %s\n", wn)
+	}
+}
+
+// checkOutDir refuses an output directory that exists and holds anything
+// but the files locate writes (and the extra names allowed), so that a
+// mistyped -o cannot replace unrelated work.
+func checkOutDir(dir string, keep []string) error {
+	fi, err := os.Lstat(dir)
+	if errors.Is(err, os.ErrNotExist) {
+		return nil
+	}
+	if err != nil {
+		return fmt.Errorf("-o %s: %w", dir, err)
+	}
+	if !fi.IsDir() {
+		return usageErrorf("-o %s: exists and is not a directory", dir)
+	}
+	entries, err := os.ReadDir(dir)
+	if err != nil {
+		return fmt.Errorf("-o %s: %w", dir, err)
+	}
+	allowed := map[string]bool{}
+	for _, n := range append(append([]string(nil), resultFiles...), keep...) {
+		allowed[n] = true
+	}
+	for _, e := range entries {
+		if !allowed[e.Name()] {
+			return usageErrorf("-o %s: the directory exists and holds %q, which undercurrent did not write there: choose a new directory (results are replaced only in a directory holding nothing else)", dir, e.Name())
+		}
+	}
+	return nil
+}
+
+// stageDir builds the output directory dir whole or not at all: fill
+// writes every file into a temporary sibling directory, which then takes
+// dir's place (an earlier result directory, holding only names locate
+// writes and keep, is replaced). On any error nothing is left behind and
+// dir is as it was.
+func stageDir(dir string, keep []string, fill func(tmp string) error) (err error) {
+	if err := checkOutDir(dir, keep); err != nil {
+		return err
+	}
+	parent := filepath.Dir(filepath.Clean(dir))
+	if err := os.MkdirAll(parent, 0o755); err != nil {
+		return err
+	}
+	tmp, err := os.MkdirTemp(parent, "."+filepath.Base(dir)+".tmp-")
+	if err != nil {
+		return err
+	}
+	defer func() {
+		if err != nil {
+			os.RemoveAll(tmp)
+		}
+	}()
+	if err := fill(tmp); err != nil {
+		return err
+	}
+	if err := os.Chmod(tmp, 0o755); err != nil {
+		return err
+	}
+	if _, err := os.Lstat(dir); errors.Is(err, os.ErrNotExist) {
+		return os.Rename(tmp, dir)
+	}
+	// Replace an earlier result: move it aside, move the new one in, and
+	// only then delete the old one.
+	if err := checkOutDir(dir, keep); err != nil {
+		return err
+	}
+	old, err := os.MkdirTemp(parent, "."+filepath.Base(dir)+".old-")
+	if err != nil {
+		return err
+	}
+	os.Remove(old)
+	if err := os.Rename(dir, old); err != nil {
+		return err
+	}
+	if err := os.Rename(tmp, dir); err != nil {
+		if rerr := os.Rename(old, dir); rerr != nil {
+			return fmt.Errorf("%w; the earlier results are in %s", err, old)
+		}
+		return err
+	}
+	return os.RemoveAll(old)
+}
+
+// writeDocFiles writes the four result files into dir.
+func writeDocFiles(dir string, doc *report.Document) error {
+	writers := map[string]func(io.Writer, *report.Document) error{
+		"results.json":  report.WriteJSON,
+		"results.csv":   report.WriteCSV,
+		"route.geojson": report.WriteGeoJSON,
+		"report.html":   report.WriteHTML,
+	}
+	for _, name := range resultFiles {
+		if err := writeFile(filepath.Join(dir, name), func(w io.Writer) error { return writers[name](w, doc) }); err != nil {
+			return fmt.Errorf("writing %s: %w", name, err)
+		}
+	}
+	return nil
+}
+
+// writeFile creates path and writes it with write, reporting a failed
+// close (a full disk shows there).
+func writeFile(path string, write func(io.Writer) error) error {
+	f, err := os.Create(path)
+	if err != nil {
+		return err
+	}
+	bw := bufio.NewWriterSize(f, 1<<16)
+	if err := write(bw); err != nil {
+		f.Close()
+		return err
+	}
+	if err := bw.Flush(); err != nil {
+		f.Close()
+		return err
+	}
+	return f.Close()
+}
+
+// writeResults writes the result directory of a locate run.
+func writeResults(dir string, doc *report.Document, keep []string) error {
+	return stageDir(dir, keep, func(tmp string) error { return writeDocFiles(tmp, doc) })
+}

@@ -1,0 +1,147 @@
+package main
+
+import (
+	"context"
+	"fmt"
+	"io"
+	"math"
+	"path/filepath"
+	"strings"
+
+	"github.com/spf13/pflag"
+
+	"undercurrent/ingest"
+	"undercurrent/inverse/simulate"
+)
+
+func init() {
+	var (
+		out, baseOut string
+		seed         int64
+	)
+	register(&command{
+		name:    "simulate",
+		usage:   "[flags] SCENARIO -o LOG",
+		summary: "forward-model a magnetometer log from a scenario file",
+		long: `Simulate reads a scenario file (TOML: conductors and their currents, the
+survey pattern, sensor height, noise and distortion, the Earth's field and
+its drift; see testdata/demo/fenwick-lane.toml for a commented example) and
+writes the log a sensor would have recorded. The output format follows the
+extension of LOG: .csv, .arrow (Arrow IPC file), .arrows (Arrow IPC stream)
+or .parquet. Each survey line gets its own value in the group column.
+
+Use it to plan a survey (is this current detectable at this depth with this
+sensor?) and to check the locate command against known answers. It prints
+the largest field each conductor produces at the sensor and its ratio to the
+sensor noise.
+
+Examples:
+  undercurrent simulate testdata/demo/fenwick-lane.toml -o fenwick-lane.csv
+  undercurrent simulate testdata/scenarios/kestrel-moor-step.toml -o kestrel.parquet --base-log base.csv
+  undercurrent simulate --seed 7 testdata/scenarios/single-line.toml -o line.arrow`,
+		setFlags: func(fs *pflag.FlagSet) {
+			fs.StringVarP(&out, "output", "o", "", "write the log to `LOG` (.csv, .arrow, .arrows or .parquet)")
+			fs.StringVar(&baseOut, "base-log", "", "also write the scenario's base-station log to `FILE`")
+			fs.Int64Var(&seed, "seed", 0, "override the scenario's random seed")
+		},
+		run: func(ctx context.Context, fs *pflag.FlagSet, args []string, stdout, stderr io.Writer) error {
+			if len(args) != 1 {
+				return usageErrorf("want one SCENARIO file, got %d arguments", len(args))
+			}
+			if out == "" {
+				return usageErrorf("missing -o LOG: where to write the log")
+			}
+			if err := checkLogExt(out); err != nil {
+				return usageErrorf("-o %s: %v", out, err)
+			}
+			if baseOut != "" {
+				if err := checkLogExt(baseOut); err != nil {
+					return usageErrorf("--base-log %s: %v", baseOut, err)
+				}
+			}
+			sc, err := simulate.Load(args[0])
+			if err != nil {
+				return err
+			}
+			if fs.Changed("seed") {
+				sc.Seed = seed
+			}
+			if baseOut != "" && sc.Base == nil {
+				return fmt.Errorf("%s has no [base] table, so there is no base-station log to write", args[0])
+			}
+			s, err := simulate.Simulate(sc)
+			if err != nil {
+				return err
+			}
+			if err := ingest.WriteSamples(out, s); err != nil {
+				return err
+			}
+			fmt.Fprintf(stdout, "wrote %s: %d readings on %d survey lines over %s\n",
+				out, s.Len(), len(sc.Lines()), span(s.Time))
+			if baseOut != "" {
+				b, err := simulate.SimulateBase(sc)
+				if err != nil {
+					return err
+				}
+				if err := ingest.WriteSamples(baseOut, b); err != nil {
+					return err
+				}
+				fmt.Fprintf(stdout, "wrote %s: %d base-station readings\n", baseOut, b.Len())
+			}
+			printDetectability(stdout, sc)
+			return nil
+		},
+	})
+}
+
+// checkLogExt checks that a log file name has an extension ingest writes.
+func checkLogExt(path string) error {
+	switch ext := extOf(path); ext {
+	case ".csv", ".arrow", ".arrows", ".parquet":
+		return nil
+	case "":
+		return fmt.Errorf("no extension: name the file .csv, .arrow, .arrows or .parquet")
+	default:
+		return fmt.Errorf("cannot write %q files: use .csv, .arrow, .arrows or .parquet", ext)
+	}
+}
+
+func extOf(path string) string { return strings.ToLower(filepath.Ext(path)) }
+
+// span formats the duration of a log.
+func span(t []float64) string {
+	if len(t) < 2 {
+		return "0 s"
+	}
+	d := t[len(t)-1] - t[0]
+	if d < 120 {
+		return fmt.Sprintf("%.1f s", d)
+	}
+	return fmt.Sprintf("%.1f min", d/60)
+}
+
+// printDetectability prints each conductor's peak field at the sensors and
+// its ratio to the per-reading noise.
+func printDetectability(w io.Writer, sc *simulate.Scenario) {
+	peaks := sc.PeakFields()
+	noise := sc.Sensor.Noise
+	for i, c := range sc.Conductors {
+		name := c.Name
+		if name == "" {
+			name = fmt.Sprintf("conductor %d", i+1)
+		}
+		what := "peak field"
+		if c.Frequency > 0 {
+			what = fmt.Sprintf("peak %g Hz field (RMS)", c.Frequency)
+		}
+		if noise > 0 {
+			fmt.Fprintf(w, "  %s (%s): %s %.4g nT, %.3g times the %.3g nT reading noise\n",
+				name, c.Kind, what, peaks[i], peaks[i]/noise, noise)
+		} else {
+			fmt.Fprintf(w, "  %s (%s): %s %.4g nT (no noise)\n", name, c.Kind, what, peaks[i])
+		}
+		if noise > 0 && peaks[i] < 3*noise && !math.IsNaN(peaks[i]) {
+			fmt.Fprintf(w, "    below 3 times the noise in any one reading: hard to detect without many readings\n")
+		}
+	}
+}
