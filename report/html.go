@@ -168,7 +168,7 @@ func (v *view) where(f Finding) string {
 			parts = append(parts, fmt.Sprintf("chainage %.0f m", f.ChainageFrom))
 		}
 	}
-	parts = append(parts, fmt.Sprintf("E %.1f N %.1f", f.Position[0], f.Position[1]))
+	parts = append(parts, en(f.Position))
 	if lon, lat, ok := v.D.wgs84(f.Position); ok {
 		parts = append(parts, fmt.Sprintf("%.6f°, %.6f°", lat, lon))
 	}
@@ -212,11 +212,28 @@ func (v *view) groupRow(g *Group) groupRow {
 		if c, ok := v.D.cover(s.Depth); ok {
 			cov = append(cov, num(c))
 		}
-		az = append(az, fmt.Sprintf("%.1f ± %.1f", s.Azimuth, s.AzimuthSigma))
+		if unresolved(&s, "azimuth") {
+			az = append(az, fmt.Sprintf("%.1f (assumed)", s.Azimuth))
+		} else {
+			az = append(az, fmt.Sprintf("%.1f ± %.1f", s.Azimuth, s.AzimuthSigma))
+		}
 	}
 	r.Current, r.Phase = strings.Join(cur, "; "), strings.Join(ph, "; ")
 	r.Depth, r.Cover, r.Azimuth = strings.Join(dep, "; "), strings.Join(cov, "; "), strings.Join(az, "; ")
 	return r
+}
+
+// en formats a plan position as "E 12.3 N -4.5", without negative zeros.
+func en(p [3]float64) string { return "E " + fix(p[0], 1) + " N " + fix(p[1], 1) }
+
+// unresolved reports whether the readings leave quantity q of s undetermined.
+func unresolved(s *Source, q string) bool {
+	for _, u := range s.Unidentifiable {
+		if u == q {
+			return true
+		}
+	}
+	return false
 }
 
 // summarise writes the few sentences a crew lead reads first.
@@ -285,16 +302,20 @@ func (v *view) summarise() {
 		for _, g := range d.Groups {
 			for i, s := range g.Sources {
 				if s.Kind == KindDipole {
-					v.Headline = append(v.Headline, fmt.Sprintf("Source %d is a magnetised object, not a current, at E %.1f N %.1f, %s m %s.",
-						i+1, s.Point[0], s.Point[1], num(s.Depth), shortRef(d)))
+					v.Headline = append(v.Headline, fmt.Sprintf("Source %d is a magnetised object, not a current, at %s, %s m %s.",
+						i+1, en(s.Point), num(s.Depth), shortRef(d)))
 					continue
 				}
 				line := fmt.Sprintf("Conductor %d: %s ± %s A", i+1, num(s.Current), num(s.CurrentSigma))
 				if s.Phase != nil {
 					line += fmt.Sprintf(" RMS at %.0f°", *s.Phase)
 				}
-				line += fmt.Sprintf(", depth %s ± %s m %s, running %.0f° from north, passing E %.1f N %.1f.",
-					num(s.Depth), num(s.DepthSigma), shortRef(d), s.Azimuth, s.Point[0], s.Point[1])
+				line += fmt.Sprintf(", depth %s ± %s m %s, ", num(s.Depth), num(s.DepthSigma), shortRef(d))
+				if unresolved(&s, "azimuth") {
+					line += fmt.Sprintf("crossing the traverse at %s (its direction is assumed, not measured: one traverse cannot tell).", en(s.Point))
+				} else {
+					line += fmt.Sprintf("running %.0f° from north, passing %s.", s.Azimuth, en(s.Point))
+				}
 				v.Headline = append(v.Headline, line)
 				curSig = append(curSig, s.CurrentSigma)
 				if s.Current != 0 {

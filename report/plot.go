@@ -154,7 +154,14 @@ func planPlot(d *Document) (*plot.Plot, error) {
 	if s != nil {
 		p.Legend.Add("readings", s)
 	}
-	// Conductors over the stretch each group's readings see.
+	// Conductors over the stretch each group's readings see, drawn at
+	// least a quarter of the survey's extent long so that a conductor
+	// crossing a single traverse shows.
+	minHalf := 1.0
+	if len(sx) > 0 {
+		ext := math.Hypot(maxOf(sx)-minOf(sx), maxOf(sy)-minOf(sy))
+		minHalf = math.Max(minHalf, ext/8)
+	}
 	var shown bool
 	for _, g := range d.Groups {
 		for _, src := range g.Sources {
@@ -164,10 +171,11 @@ func planPlot(d *Document) (*plot.Plot, error) {
 				}
 				continue
 			}
-			a, b := along(src.Point, src.Direction, src.Span[0]), along(src.Point, src.Direction, src.Span[1])
-			if src.Span[1] <= src.Span[0] {
-				a, b = along(src.Point, src.Direction, -1), along(src.Point, src.Direction, 1)
+			lo, hi := src.Span[0], src.Span[1]
+			if mid := (lo + hi) / 2; hi-lo < 2*minHalf {
+				lo, hi = mid-minHalf, mid+minHalf
 			}
+			a, b := along(src.Point, src.Direction, lo), along(src.Point, src.Direction, hi)
 			l, err := polyline(p, xy{[]float64{a[0], b[0]}, []float64{a[1], b[1]}}, colFit, 1.2)
 			if err != nil {
 				return nil, err
@@ -197,6 +205,22 @@ func planPlot(d *Document) (*plot.Plot, error) {
 	}
 	squareUp(p)
 	return p, nil
+}
+
+func minOf(x []float64) float64 {
+	m := math.Inf(1)
+	for _, v := range x {
+		m = math.Min(m, v)
+	}
+	return m
+}
+
+func maxOf(x []float64) float64 {
+	m := math.Inf(-1)
+	for _, v := range x {
+		m = math.Max(m, v)
+	}
+	return m
 }
 
 // addFindingMarks numbers the findings on the plan view.

@@ -58,7 +58,7 @@ footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rul
 <body>
 <header>
 <h1>{{.Title}}</h1>
-<p class="sub">{{with .D.Site}}{{.}} · {{end}}{{with .D.Created}}made {{.}} · {{end}}{{.D.Tool.Name}} {{.D.Tool.Version}}</p>
+<p class="sub">{{with .D.Site}}{{.}} · {{end}}{{with .D.Created}}made {{.}} · {{end}}{{or .D.Tool.Name "undercurrent"}} {{.D.Tool.Version}}</p>
 </header>
 
 <section class="cautions" aria-label="cautions">
@@ -143,7 +143,7 @@ footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rul
 {{end}}</ul>{{end}}
 </section>
 
-<footer>Made by {{.D.Tool.Name}} {{.D.Tool.Version}} · result document schema {{.D.SchemaVersion}}. Positions in metres, fields in nanotesla, currents in amperes{{if eq .D.Signal.Mode "ac"}} (RMS){{end}}.</footer>
+<footer>Made by {{or .D.Tool.Name "undercurrent"}} {{.D.Tool.Version}} · result document schema {{.D.SchemaVersion}}. Positions in metres, fields in nanotesla, currents in amperes{{if eq .D.Signal.Mode "ac"}} (RMS){{end}}.</footer>
 </body>
 </html>
 `

@@ -19,7 +19,7 @@ func cover(ps []Placed, set *Settings) []Finding {
 		if len(run) == 0 {
 			return
 		}
-		out = append(out, coverFinding(run, sev, set))
+		out = append(out, coverFinding(run, sev, set, len(ps) == 1))
 		run, sev = nil, SeverityCaution
 	}
 	for i := range ps {
@@ -41,7 +41,7 @@ func cover(ps []Placed, set *Settings) []Finding {
 	return out
 }
 
-func coverFinding(run []*Placed, sev Severity, set *Settings) Finding {
+func coverFinding(run []*Placed, sev Severity, set *Settings, single bool) Finding {
 	low := run[0]
 	for _, p := range run[1:] {
 		if p.Depth < low.Depth {
@@ -53,7 +53,7 @@ func coverFinding(run []*Placed, sev Severity, set *Settings) Finding {
 	if set.CoverCode != "" {
 		code = "of " + set.CoverCode
 	}
-	where := fmt.Sprintf("at %s (chainage %.1f m)", label(low), low.Chainage)
+	where := "at " + at(low, single)
 	if len(run) > 1 {
 		where = fmt.Sprintf("from %s (chainage %.1f m) to %s (%.1f m), shallowest at %s",
 			label(run[0]), run[0].Chainage, label(run[len(run)-1]), run[len(run)-1].Chainage, label(low))

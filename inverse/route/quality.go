@@ -19,8 +19,8 @@ func quality(ps []Placed, set *Settings) []Finding {
 				From:     p.Chainage, To: p.Chainage,
 				Position: p.Point,
 				Keys:     []string{p.Key},
-				Message: fmt.Sprintf("the field at %s (chainage %.1f m) looks like a magnetised object, not a current; it is left out of the current and cover profile",
-					label(p), p.Chainage),
+				Message: fmt.Sprintf("the field at %s looks like a magnetised object, not a current; it is left out of the current and cover profile",
+					at(p, len(ps) == 1)),
 			})
 		}
 		var why []string
@@ -53,8 +53,8 @@ func quality(ps []Placed, set *Settings) []Finding {
 			From:     p.Chainage, To: p.Chainage,
 			Position: p.Point,
 			Keys:     []string{p.Key},
-			Message: fmt.Sprintf("fit at %s (chainage %.1f m) is poor or ambiguous (%s); %s",
-				label(p), p.Chainage, strings.Join(why, "; "), use),
+			Message: fmt.Sprintf("fit at %s is poor or ambiguous (%s); %s",
+				at(p, len(ps) == 1), strings.Join(why, "; "), use),
 			Values: vals,
 		})
 	}

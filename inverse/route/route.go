@@ -262,3 +262,12 @@ func label(p *Placed) string {
 	}
 	return fmt.Sprintf("#%d", p.Index)
 }
+
+// at names a station with its chainage, or by name alone when it is the
+// only station (a chainage of zero would say nothing).
+func at(p *Placed, single bool) string {
+	if single {
+		return label(p)
+	}
+	return fmt.Sprintf("%s (chainage %.1f m)", label(p), p.Chainage)
+}

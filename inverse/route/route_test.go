@@ -452,3 +452,22 @@ func BenchmarkBuild1000(b *testing.B) {
 		}
 	}
 }
+
+// A single station gets the cover and fit checks, without a chainage in
+// the messages.
+func TestSingleStation(t *testing.T) {
+	st := []Station{{Key: "K1", Point: [3]float64{1, 2, -0.9}, Dir: [3]float64{0, 1, 0}, Current: 3, CurrentSigma: 0.01,
+		Depth: 0.9, DepthSigma: 0.01, OK: true, Problem: "azimuth unidentifiable"}}
+	r, err := Build(st, &Settings{MinCover: 0.75, SensorHeight: 0.3})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if r.Length != 0 || len(r.Stations) != 1 || len(r.Findings) != 2 {
+		t.Fatalf("length %g, %d stations, findings %+v", r.Length, len(r.Stations), r.Findings)
+	}
+	for _, f := range r.Findings {
+		if strings.Contains(f.Message, "chainage") {
+			t.Errorf("single-station message mentions chainage: %s", f.Message)
+		}
+	}
+}
