@@ -9,12 +9,10 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"math/cmplx"
 	"os"
 	"path/filepath"
 	"runtime"
 	"runtime/debug"
-	"sort"
 	"strconv"
 	"strings"
 	"sync"
@@ -27,7 +25,6 @@ import (
 	"undercurrent/calibrate"
 	"undercurrent/ingest"
 	"undercurrent/inverse"
-	"undercurrent/inverse/route"
 	"undercurrent/report"
 )
 
@@ -247,6 +244,17 @@ type group struct {
 	err    error           // fit failure
 }
 
+// problem is the group's readings as an inverse problem.
+func (g *group) problem(ac bool, noise float64) *inverse.Problem {
+	p := &inverse.Problem{Points: g.points, Sigma: noise}
+	if ac {
+		p.Phasors = g.phase
+	} else {
+		p.Fields = g.fields
+	}
+	return p
+}
+
 // survey is what runLocate has read and corrected.
 type survey struct {
 	doc      *report.Document
@@ -416,13 +424,11 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 	if len(res.Windows) == 0 {
 		return fmt.Errorf("%s: no complete demodulation window: the log (or each group) is shorter than the window", s.Source)
 	}
-	if sv.doc.Signal.WindowS == 0 && len(res.Windows) > 0 {
-		w := res.Windows[0]
+	if sv.doc.Signal.WindowS == 0 {
 		win := o.window
 		if win == 0 {
-			win = 10 / o.freq
+			win = 10 / o.freq // calibrate's default: ten cycles
 		}
-		_ = w
 		sv.doc.Signal = report.Signal{Mode: report.SignalAC, FrequencyHz: res.Freq, WindowS: win}
 	}
 	for _, w := range res.Windows {
@@ -462,13 +468,7 @@ func fitGroups(ctx context.Context, o *locateOptions, sv *survey, progress io.Wr
 		go func() {
 			defer wg.Done()
 			for g := range jobs {
-				p := &inverse.Problem{Points: g.points, Sigma: o.noise}
-				if sv.ac {
-					p.Phasors = g.phase
-				} else {
-					p.Fields = g.fields
-				}
-				g.res, g.err = inverse.FitLines(p, set)
+				g.res, g.err = inverse.FitLines(g.problem(sv.ac, o.noise), set)
 				if bar != nil {
 					mu.Lock()
 					bar.Add(1)
@@ -495,232 +495,29 @@ feed:
 	return err
 }
 
-// buildDocument turns the fits into the result document and runs the
-// along-route analysis.
+// buildDocument turns the fits into the result document; report.Build
+// runs the along-route analysis.
 func buildDocument(o *locateOptions, sv *survey) (*report.Document, error) {
-	doc := sv.doc
-	if !sv.ac {
-		doc.Signal = report.Signal{Mode: report.SignalDC}
+	head := *sv.doc
+	head.Warnings = append(head.Warnings, sv.warnings...)
+	fits := make([]report.Fit, len(sv.groups))
+	for i, g := range sv.groups {
+		fits[i] = report.Fit{Key: g.key, Problem: g.problem(sv.ac, o.noise), Result: g.res, Err: g.err}
 	}
-	if o.hasRefZ {
-		doc.DepthReference = report.DepthReference{Kind: report.DepthBelowGround, Z: o.referenceZ}
-	} else {
-		doc.DepthReference = report.DepthReference{Kind: report.DepthBelowSensors, SensorHeight: o.sensorHeight}
+	doc, err := report.Build(head, fits, &report.BuildSettings{
+		SensorHeight: o.sensorHeight,
+		MinCover:     o.minCover,
+		CoverCode:    o.coverCode,
+		StepK:        o.stepK,
+		Noise:        o.noise,
+	})
+	if err != nil {
+		return nil, err
 	}
-	if o.minCover > 0 {
-		doc.MinCover = &report.MinCover{Depth: o.minCover, Code: o.coverCode}
-	}
-	// A reference noise for judging each fit: the given reading noise, or
-	// the median of the groups' own residual estimates, so that a group
-	// fitting much worse than the others stands out.
-	refSigma := o.noise
-	if refSigma == 0 {
-		var sig []float64
-		for _, g := range sv.groups {
-			if g.err == nil && g.res.Sigma > 0 {
-				sig = append(sig, g.res.Sigma)
-			}
-		}
-		if len(sig) >= 3 {
-			sort.Float64s(sig)
-			refSigma = sig[len(sig)/2]
-		}
-	}
-	stations := make([]route.Station, 0, len(sv.groups))
-	for _, g := range sv.groups {
-		gd, st := groupResult(g, sv.ac, refSigma)
-		doc.Groups = append(doc.Groups, gd)
-		stations = append(stations, st)
-	}
-	if len(stations) >= 2 {
-		rs := &route.Settings{StepK: o.stepK, MinCover: o.minCover, CoverCode: o.coverCode}
-		if !o.hasRefZ {
-			rs.SensorHeight = o.sensorHeight
-		}
-		if refSigma == 0 {
-			rs.MaxReducedChi2 = -1
-		}
-		r, err := route.Build(stations, rs)
-		if err != nil {
-			return nil, err
-		}
-		doc.SetRoute(r)
-	} else {
-		for _, st := range stations {
-			if !st.OK || st.Problem != "" {
-				doc.Findings = append(doc.Findings, report.Finding{
-					Kind: string(route.KindPoorFit), Severity: report.SeverityCaution,
-					Position: st.Point, Groups: []string{st.Key},
-					Message: "The fit is poor or ambiguous: " + orText(st.Problem, "it failed") + ".",
-				})
-			}
-		}
-	}
-	doc.Warnings = append(doc.Warnings, sv.warnings...)
 	if err := doc.Validate(); err != nil {
 		return nil, fmt.Errorf("internal error: the result document is not valid: %w", err)
 	}
 	return doc, nil
-}
-
-func orText(s, alt string) string {
-	if s == "" {
-		return alt
-	}
-	return s
-}
-
-// groupResult converts one group's fit into the document's group and the
-// route's station (the strongest source is the one the route follows).
-func groupResult(g *group, ac bool, refSigma float64) (report.Group, route.Station) {
-	gd := report.Group{Key: g.key, Points: len(g.points), Centroid: centroid(g.points), Sources: []report.Source{}}
-	st := route.Station{Key: g.key, Point: gd.Centroid, AC: ac}
-	if g.err != nil {
-		gd.Problem = "the fit failed: " + g.err.Error()
-		st.Problem = gd.Problem
-		return gd, st
-	}
-	res := g.res
-	gd.RMS = res.RMS
-	gd.Background, gd.BackgroundSigma = res.Background, res.BackgroundSigma
-	gd.Chi2, gd.DOF = res.Chi2, res.DOF
-	gd.Status = res.Status.String()
-	// A fit that stalled has stopped where rounding leaves no further
-	// reduction: at the minimum for practical purposes, with tolerances
-	// near machine precision. Only running out of iterations is a failure.
-	gd.OK = (res.Status.Converged() || res.Status == inverse.Stalled) && len(res.Sources) > 0
-	gd.Notes = append(gd.Notes, res.Notes...)
-	for _, c := range res.Criteria {
-		gd.Criteria = append(gd.Criteria, report.Criterion{Count: c.Count, AIC: c.AIC, BIC: c.BIC, RSS: c.RSS, Chosen: c.Chosen})
-	}
-	for _, s := range res.Sources {
-		gd.Sources = append(gd.Sources, sourceResult(s, g.points, ac))
-	}
-	if !gd.OK {
-		gd.Problem = "the fit did not converge (" + gd.Status + ")"
-	} else if amb := ambiguity(res.Criteria); amb != "" {
-		gd.Problem = amb
-	}
-	if len(res.Sources) > 0 {
-		s := res.Sources[0]
-		st.Point, st.Dir = s.Point, s.Dir
-		st.Current, st.CurrentSigma = s.Current, s.CurrentSigma
-		st.Phase, st.PhaseSigma = s.Phase, s.PhaseSigma
-		st.Depth, st.DepthSigma = s.Depth, s.DepthSigma
-		if p, err := groupProfile(g, res, ac); err == nil {
-			gd.Profile = p
-		}
-	}
-	st.RMS = res.RMS
-	if refSigma > 0 && res.Sigma > 0 {
-		st.Chi2 = res.Chi2 * (res.Sigma / refSigma) * (res.Sigma / refSigma)
-		st.DOF = res.DOF
-	}
-	st.OK = gd.OK
-	st.Problem = gd.Problem
-	return gd, st
-}
-
-// ambiguity says when the number of conductors is not clear: another count
-// scores within 2 of the chosen one on the criterion used (BIC), a
-// difference usually read as "not worth more than a bare mention" (Kass &
-// Raftery, J. Am. Stat. Assoc. 90(430):773-795, 1995).
-func ambiguity(cs []inverse.ModelScore) string {
-	var chosen *inverse.ModelScore
-	for i := range cs {
-		if cs[i].Chosen {
-			chosen = &cs[i]
-		}
-	}
-	if chosen == nil {
-		return ""
-	}
-	for _, c := range cs {
-		if c.Count != chosen.Count && c.Rejected == "" && math.Abs(c.BIC-chosen.BIC) < 2 {
-			return fmt.Sprintf("%d and %d conductors fit about as well", min(c.Count, chosen.Count), max(c.Count, chosen.Count))
-		}
-	}
-	return ""
-}
-
-// sourceResult converts one fitted source.
-func sourceResult(s inverse.SourceEstimate, pts [][3]float64, ac bool) report.Source {
-	kind := s.Kind
-	if kind == "" {
-		kind = report.KindLine
-	}
-	out := report.Source{
-		Kind: kind, Point: s.Point, Direction: s.Dir,
-		Current: s.Current, CurrentSigma: s.CurrentSigma,
-		Depth: s.Depth, DepthSigma: s.DepthSigma,
-		Offset: s.Offset, OffsetSigma: s.OffsetSigma,
-		Azimuth: s.Azimuth, AzimuthSigma: s.AzimuthSigma,
-		Dip: s.Dip, DipSigma: s.DipSigma,
-		Notes: append([]string(nil), s.Notes...),
-	}
-	if ac {
-		ph, phs := s.Phase, s.PhaseSigma
-		out.Phase, out.PhaseSigma = &ph, &phs
-	}
-	id := s.Identifiable
-	for _, q := range []struct {
-		ok   bool
-		name string
-	}{{id.Current, "current"}, {id.Phase || !ac, "phase"}, {id.Depth, "depth"}, {id.Offset, "offset"}, {id.Azimuth, "azimuth"}, {id.Dip, "dip"}} {
-		if !q.ok {
-			out.Unidentifiable = append(out.Unidentifiable, q.name)
-		}
-	}
-	lo, hi := math.Inf(1), math.Inf(-1)
-	for _, p := range pts {
-		t := (p[0]-s.Point[0])*s.Dir[0] + (p[1]-s.Point[1])*s.Dir[1] + (p[2]-s.Point[2])*s.Dir[2]
-		lo, hi = math.Min(lo, t), math.Max(hi, t)
-	}
-	if len(pts) > 0 {
-		out.Span = [2]float64{lo, hi}
-	}
-	return out
-}
-
-// profileMax is the most readings kept per group for the report's plots.
-const profileMax = 240
-
-// groupProfile keeps a thinned copy of the readings against the fit, for
-// the report's plots. For AC the in-phase part is plotted: each phasor
-// turned by minus the strongest source's phase, real part.
-func groupProfile(g *group, res *inverse.Result, ac bool) (*report.Profile, error) {
-	s := res.Sources[0]
-	if !ac {
-		if len(res.Predicted) != len(g.points) {
-			return nil, errors.New("no predictions")
-		}
-		return report.NewProfile(g.points, g.fields, res.Predicted, s.Point, s.Dir, report.ComponentDC, profileMax)
-	}
-	if len(res.PredictedPhasors) != len(g.points) {
-		return nil, errors.New("no predictions")
-	}
-	rot := cmplx.Rect(1, -s.Phase*math.Pi/180)
-	re := func(v [][3]complex128) [][3]float64 {
-		out := make([][3]float64, len(v))
-		for i, b := range v {
-			for k := range 3 {
-				out[i][k] = real(b[k] * rot)
-			}
-		}
-		return out
-	}
-	return report.NewProfile(g.points, re(g.phase), re(res.PredictedPhasors), s.Point, s.Dir, report.ComponentACInPhase, profileMax)
-}
-
-func centroid(pts [][3]float64) [3]float64 {
-	var c [3]float64
-	for _, p := range pts {
-		c[0], c[1], c[2] = c[0]+p[0], c[1]+p[1], c[2]+p[2]
-	}
-	if n := float64(len(pts)); n > 0 {
-		c = [3]float64{c[0] / n, c[1] / n, c[2] / n}
-	}
-	return c
 }
 
 // sameOrigin records the first geo-referenced log's origin and refuses logs
