@@ -128,13 +128,16 @@ func (f *fitter) seedsFromData(d []float64) []seed {
 		azs = f.sv.azimuthCandidates(a)
 	}
 	var out []seed
-	for _, az := range azs {
+	for i, az := range azs {
 		sd := f.sv.seedFor(a, az)
-		h := sd.z
-		zc := f.sv.pts[0][2]
-		_ = zc
-		depth := f.sv.zmean - h
-		for _, m := range []float64{1, 0.6, 1.7} {
+		depth := f.sv.zmean - sd.z
+		// Depth variants for the two informed azimuths (field direction, ridge axis);
+		// the coarse fan gets the half-width depth only.
+		mults := []float64{1, 0.6, 1.7}
+		if i >= 2 {
+			mults = mults[:1]
+		}
+		for _, m := range mults {
 			s2 := sd
 			s2.z = f.sv.zmean - m*depth
 			out = append(out, s2)
@@ -217,6 +220,11 @@ func (f *fitter) fitK(k int, prev *candidate) (*candidate, error) {
 			continue
 		}
 		agree := best != nil && math.Abs(res.rss-best.rss) <= 1e-8*best.rss
+		// One line on one traverse has only offset and height to find: the best-ranked
+		// start suffices unless it failed to converge or stopped on a bound.
+		if k == 1 && f.sv.single && res.status.Converged() && !st.sp.atBound(res.x) {
+			agree = true
+		}
 		if best == nil || res.rss < best.rss {
 			best = &candidate{sp: st.sp, x: res.x, res: res, rss: res.rss, iters: res.iter}
 		}

@@ -95,6 +95,12 @@ func levmar(p *lmProblem, x0 []float64, set lmSettings) (*lmResult, error) {
 	step := make([]float64, n)
 	jp := make([]float64, m)
 	free := make([]int, 0, n)
+	var (
+		rCache          *mat.Dense
+		svd             mat.SVD
+		U, V            mat.Dense
+		qtrBuf, betaBuf = make([]float64, n), make([]float64, n)
+	)
 	cn2 := make([]float64, n)
 	grad := make([]float64, n)
 	aug := make([]float64, m*(n+1))
@@ -183,24 +189,30 @@ func levmar(p *lmProblem, x0 []float64, set lmSettings) (*lmResult, error) {
 			work = make([]float64, lw)
 		}
 		lapack64.Geqrf(a, tau[:nf+1], work, len(work))
-		R := mat.NewDense(nf, nf, nil)
-		qtr := make([]float64, nf)
+		if rCache == nil || rCache.RawMatrix().Rows != nf {
+			rCache = mat.NewDense(nf, nf, nil)
+			U.Reset()
+			V.Reset()
+		} else {
+			rCache.Zero()
+		}
+		R := rCache
+		qtr := qtrBuf[:nf]
 		for i := range nf {
 			for k := i; k < nf; k++ {
 				R.Set(i, k, a.Data[i*a.Stride+k])
 			}
 			qtr[i] = a.Data[i*a.Stride+nf]
 		}
-		var svd mat.SVD
+
 		if !svd.Factorize(R, mat.SVDThin) {
 			status = Stalled
 			break
 		}
 		sv := svd.Values(nil)
-		var U, V mat.Dense
 		svd.UTo(&U)
 		svd.VTo(&V)
-		beta := make([]float64, nf)
+		beta := betaBuf[:nf]
 		for k := range nf {
 			var s float64
 			for i := range nf {

@@ -226,13 +226,9 @@ func (sp *separable) evaluate(x []float64) error {
 }
 
 func (sp *separable) ensureWork(a blas64.General, ncols int) {
-	var w [1]float64
-	lapack64.Geqrf(a, sp.tau, w[:], -1)
-	need := int(w[0])
-	c := blas64.General{Rows: a.Rows, Cols: ncols, Stride: ncols, Data: nil}
-	lapack64.Ormqr(blas.Left, blas.Trans, a, sp.tau, c, w[:], -1)
-	need = max(need, int(w[0]), a.Rows, ncols)
-	if len(sp.work) < need {
+	// The unblocked Householder code needs only max(columns) of workspace; the blocked
+	// code would ask for far more and gains nothing at these sizes.
+	if need := max(a.Cols, ncols, 1); len(sp.work) < need {
 		sp.work = make([]float64, need)
 	}
 }
@@ -327,11 +323,7 @@ func (sp *separable) jac(x, _ []float64, J *mat.Dense) error {
 	sp.dPhiC(sp.dblk, np)
 	a := blas64.General{Rows: sp.m, Cols: sp.q, Stride: sp.q, Data: sp.phi}
 	c := blas64.General{Rows: sp.m, Cols: cols, Stride: cols, Data: sp.dblk}
-	var w [1]float64
-	lapack64.Ormqr(blas.Left, blas.Trans, a, sp.tau, c, w[:], -1)
-	if int(w[0]) > len(sp.work) {
-		sp.work = make([]float64, int(w[0]))
-	}
+	sp.ensureWork(a, cols)
 	lapack64.Ormqr(blas.Left, blas.Trans, a, sp.tau, c, sp.work, len(sp.work))
 	mq := sp.m - sp.q
 	jd := J.RawMatrix()
@@ -428,4 +420,15 @@ func equal(a, b []float64) bool {
 		}
 	}
 	return true
+}
+
+// atBound reports whether any geometry parameter of x lies on its bound.
+func (sp *separable) atBound(x []float64) bool {
+	_, lo, hi := sp.pack()
+	for i, v := range x {
+		if v <= lo[i] || v >= hi[i] {
+			return true
+		}
+	}
+	return false
 }
