@@ -1,0 +1,281 @@
+package main
+
+import (
+	"encoding/json"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"undercurrent/ingest"
+	"undercurrent/inverse/simulate"
+)
+
+// simulatedLog writes the single-line scenario's log into dir and returns
+// its path.
+func simulatedLog(t testing.TB, dir, name string) string {
+	t.Helper()
+	sc, _ := scenario(t, "single-line.toml")
+	s, err := simulate.Simulate(sc)
+	if err != nil {
+		t.Fatal(err)
+	}
+	path := filepath.Join(dir, name)
+	if err := ingest.WriteSamples(path, s); err != nil {
+		t.Fatal(err)
+	}
+	return path
+}
+
+// entries lists a directory's names.
+func entries(t *testing.T, dir string) []string {
+	t.Helper()
+	es, err := os.ReadDir(dir)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var names []string
+	for _, e := range es {
+		names = append(names, e.Name())
+	}
+	return names
+}
+
+// TestLocateBadInput checks that bad input and bad options fail with a
+// clear message, the right exit status, and no output directory (nor a
+// staging directory) left behind.
+func TestLocateBadInput(t *testing.T) {
+	dir := t.TempDir()
+	good := simulatedLog(t, dir, "good.csv")
+	bad := filepath.Join(dir, "bad.csv")
+	// A mistyped reading on line 4 (the header is line 1).
+	if err := os.WriteFile(bad, []byte("time,x,y,z,bx,by,bz\n0,0,0,0.3,1,2,3\n1,0.1,0,0.3,1,2,3\n2,0.2,0,0.3,1,2,3oo\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	noPos := filepath.Join(dir, "nopos.csv")
+	if err := os.WriteFile(noPos, []byte("time,bx,by,bz\n0,1,2,3\n1,1,2,3\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	other := filepath.Join(dir, "other")
+	if err := os.MkdirAll(other, 0o755); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(filepath.Join(other, "notes.txt"), []byte("keep me"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	cases := []struct {
+		name string
+		args []string
+		code int
+		want []string // substrings of stderr
+	}{
+		{"no logs", []string{}, 2, []string{"no LOG files"}},
+		{"missing log", []string{filepath.Join(dir, "nope.csv")}, 1, []string{"nope.csv"}},
+		{"bad number", []string{bad}, 1, []string{"bad.csv:4", "bz", "3oo"}},
+		{"no positions", []string{noPos}, 1, []string{"nopos.csv has no positions"}},
+		{"bad count", []string{"--count", "7", good}, 2, []string{`--count "7"`}},
+		{"window without freq", []string{"--window", "0.1", good}, 2, []string{"--window needs --freq"}},
+		{"min cover without ground", []string{"--min-cover", "0.6", good}, 2, []string{"--sensor-height", "--reference-z"}},
+		{"both ground references", []string{"--reference-z", "0", "--sensor-height", "0.3", good}, 2, []string{"not both"}},
+		{"negative frequency", []string{"--freq", "-50", good}, 2, []string{"--freq"}},
+		{"missing group column", []string{"--group-by", "traverse", good}, 1, []string{"traverse"}},
+		{"missing calibration", []string{"--calibration", filepath.Join(dir, "cal.json"), good}, 1, []string{"cal.json"}},
+		{"missing base", []string{"--base", filepath.Join(dir, "base.min"), good}, 1, []string{"base.min"}},
+		{"output holds other files", []string{good, "-o", other}, 2, []string{"notes.txt"}},
+		{"output is a file", []string{good, "-o", good}, 2, []string{"not a directory"}},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			out := filepath.Join(dir, "out-"+strings.ReplaceAll(tc.name, " ", "-"))
+			args := append([]string{"locate"}, tc.args...)
+			if !strings.Contains(strings.Join(tc.args, " "), " -o ") {
+				args = append(args, "-o", out)
+			}
+			code, _, stderr := cli(t, args...)
+			if code != tc.code {
+				t.Errorf("exit %d, want %d; stderr:\n%s", code, tc.code, stderr)
+			}
+			if !strings.HasPrefix(stderr, "undercurrent locate: ") {
+				t.Errorf("stderr does not start with the command name: %q", stderr)
+			}
+			for _, w := range tc.want {
+				if !strings.Contains(stderr, w) {
+					t.Errorf("stderr %q does not contain %q", stderr, w)
+				}
+			}
+			if _, err := os.Stat(out); !os.IsNotExist(err) {
+				t.Errorf("output directory %s was created", out)
+			}
+		})
+	}
+	if got := entries(t, other); len(got) != 1 || got[0] != "notes.txt" {
+		t.Errorf("the other directory was changed: %v", got)
+	}
+	for _, n := range entries(t, dir) {
+		if strings.HasPrefix(n, ".") {
+			t.Errorf("staging directory %s left behind", n)
+		}
+	}
+}
+
+// TestLocateOutputs checks the four files, that --json prints the document
+// written to results.json, and that a second run replaces an earlier result
+// directory whole.
+func TestLocateOutputs(t *testing.T) {
+	dir := t.TempDir()
+	log := simulatedLog(t, dir, "line.arrow")
+	out := filepath.Join(dir, "results")
+	stdout := mustCLI(t, "locate", "--group-by", "group", "--json", "-o", out, log)
+	var printed map[string]any
+	if err := json.Unmarshal([]byte(stdout), &printed); err != nil {
+		t.Fatalf("--json output: %v", err)
+	}
+	data, err := os.ReadFile(filepath.Join(out, "results.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var written map[string]any
+	if err := json.Unmarshal(data, &written); err != nil {
+		t.Fatal(err)
+	}
+	for _, key := range []string{"groups", "findings", "depth_reference", "schema_version"} {
+		if _, ok := written[key]; !ok {
+			t.Errorf("results.json has no %q", key)
+		}
+	}
+	if len(printed["groups"].([]any)) != 7 || len(written["groups"].([]any)) != 7 {
+		t.Errorf("want 7 groups printed and written")
+	}
+	got := entries(t, out)
+	if strings.Join(got, ",") != "report.html,results.csv,results.json,route.geojson" {
+		t.Errorf("output directory holds %v", got)
+	}
+	csv, _ := os.ReadFile(filepath.Join(out, "results.csv"))
+	if n := strings.Count(string(csv), ",T0"); n != 7 {
+		t.Errorf("results.csv has %d traverse rows, want 7:\n%s", n, csv)
+	}
+	// Run again without grouping: the directory is replaced, not merged.
+	before, _ := os.Stat(filepath.Join(out, "results.json"))
+	summary := mustCLI(t, "locate", "-o", out, log)
+	if !strings.Contains(summary, "fitted 1 group") || !strings.Contains(summary, "results in "+out) {
+		t.Errorf("summary:\n%s", summary)
+	}
+	data, _ = os.ReadFile(filepath.Join(out, "results.json"))
+	if err := json.Unmarshal(data, &written); err != nil {
+		t.Fatal(err)
+	}
+	if len(written["groups"].([]any)) != 1 {
+		t.Errorf("the second run's results.json has %d groups, want 1", len(written["groups"].([]any)))
+	}
+	after, _ := os.Stat(filepath.Join(out, "results.json"))
+	if os.SameFile(before, after) {
+		t.Error("results.json was not replaced")
+	}
+	for _, n := range entries(t, dir) {
+		if strings.HasPrefix(n, ".") {
+			t.Errorf("staging directory %s left behind", n)
+		}
+	}
+}
+
+// TestLocateGroupByOtherColumn renames the group column and groups by it.
+func TestLocateGroupByOtherColumn(t *testing.T) {
+	dir := t.TempDir()
+	log := simulatedLog(t, dir, "line.csv")
+	data, err := os.ReadFile(log)
+	if err != nil {
+		t.Fatal(err)
+	}
+	renamed := filepath.Join(dir, "renamed.csv")
+	text := strings.Replace(string(data), "bz,group\n", "bz,traverse\n", 1)
+	if text == string(data) {
+		t.Fatal("the log's header does not end in bz,group")
+	}
+	if err := os.WriteFile(renamed, []byte(text), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	out := mustCLI(t, "locate", "--group-by", "traverse", renamed)
+	if !strings.Contains(out, "fitted 7 group(s)") || !strings.Contains(out, "T07") {
+		t.Errorf("summary:\n%s", out)
+	}
+}
+
+// TestLocateHelp checks the help text has examples and the flags the issue
+// names.
+func TestLocateHelp(t *testing.T) {
+	code, out, _ := cli(t, "help", "locate")
+	if code != 0 {
+		t.Fatalf("exit %d", code)
+	}
+	for _, want := range []string{"Examples:", "--calibration", "--base", "--freq", "--window", "--count", "--group-by", "--json", "--output", "--min-cover", "--reference-z"} {
+		if !strings.Contains(out, want) {
+			t.Errorf("help does not mention %q", want)
+		}
+	}
+}
+
+// BenchmarkLocateRoute31 times locate on a DC route survey of 31 traverses
+// (the demo's route walked at 1 m/s, one reading per 0.2 m: 1,581
+// readings): reading the CSV log, fitting each traverse with the automatic
+// choice of the number of conductors, the route analysis and the document.
+func BenchmarkLocateRoute31(b *testing.B) {
+	log := routeLog(b)
+	o := &locateOptions{count: "auto", groupBy: "group", sensorHeight: 0.3, minCover: 0.6}
+	if err := o.check(nil); err != nil {
+		b.Fatal(err)
+	}
+	b.ResetTimer()
+	for b.Loop() {
+		if _, err := runLocate(b.Context(), o, []string{log}, nil); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+// BenchmarkLocateRoute31Files adds writing the four result files.
+func BenchmarkLocateRoute31Files(b *testing.B) {
+	log := routeLog(b)
+	o := &locateOptions{count: "auto", groupBy: "group", sensorHeight: 0.3, minCover: 0.6}
+	if err := o.check(nil); err != nil {
+		b.Fatal(err)
+	}
+	out := filepath.Join(b.TempDir(), "results")
+	b.ResetTimer()
+	for b.Loop() {
+		doc, err := runLocate(b.Context(), o, []string{log}, nil)
+		if err != nil {
+			b.Fatal(err)
+		}
+		if err := writeResults(out, doc, nil); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+// routeLog writes a DC version of the demo survey sampled every 0.2 m.
+func routeLog(b *testing.B) string {
+	b.Helper()
+	sc, err := simulate.Demo()
+	if err != nil {
+		b.Fatal(err)
+	}
+	for i := range sc.Conductors {
+		sc.Conductors[i].Frequency, sc.Conductors[i].Phase = 0, 0
+	}
+	sc.Sensor.SampleRate = 5
+	if err := sc.Validate(); err != nil {
+		b.Fatal(err)
+	}
+	s, err := simulate.Simulate(sc)
+	if err != nil {
+		b.Fatal(err)
+	}
+	if s.Len() != 31*51 {
+		b.Fatalf("%d readings, want 1,581", s.Len())
+	}
+	log := filepath.Join(b.TempDir(), "route.csv")
+	if err := ingest.WriteSamples(log, s); err != nil {
+		b.Fatal(err)
+	}
+	return log
+}
