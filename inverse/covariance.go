@@ -44,9 +44,7 @@ func covariance(J mat.Matrix) (cov *mat.SymDense, unresolved []bool, err error) 
 		}
 	}
 	tau := make([]float64, n)
-	work := make([]float64, 1)
-	lapack64.Geqrf(a, tau, work, -1)
-	work = make([]float64, int(work[0]))
+	work := make([]float64, max(n, 1))
 	lapack64.Geqrf(a, tau, work, len(work))
 	rf := mat.NewDense(n, n, nil)
 	for i := range n {

@@ -184,9 +184,8 @@ func levmar(p *lmProblem, x0 []float64, set lmSettings) (*lmResult, error) {
 			}
 			row[nf] = r[i]
 		}
-		lapack64.Geqrf(a, tau[:nf+1], work, -1)
-		if lw := int(work[0]); lw > len(work) {
-			work = make([]float64, lw)
+		if len(work) < nf+1 {
+			work = make([]float64, nf+1)
 		}
 		lapack64.Geqrf(a, tau[:nf+1], work, len(work))
 		if rCache == nil || rCache.RawMatrix().Rows != nf {

@@ -254,12 +254,9 @@ func solveLinear(phi []float64, m, q int, y []float64, nrhs int) ([]float64, err
 	tau := make([]float64, q)
 	qty := append([]float64(nil), y...)
 	c := blas64.General{Rows: m, Cols: nrhs, Stride: nrhs, Data: qty}
-	work := make([]float64, 1)
-	lapack64.Geqrf(a, tau, work, -1)
-	lw := int(work[0])
-	lapack64.Ormqr(blas.Left, blas.Trans, a, tau, c, work, -1)
-	lw = max(lw, int(work[0]), m, nrhs)
-	work = make([]float64, lw)
+	// Minimal workspace: the unblocked code is the fast one at these widths.
+	lw := max(q, nrhs, 1)
+	work := make([]float64, lw)
 	lapack64.Geqrf(a, tau, work, lw)
 	var rmax float64
 	for k := range q {

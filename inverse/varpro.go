@@ -144,7 +144,12 @@ func (sp *separable) buildPhi(phi []float64) error {
 	var basis [8][3]float64
 	for i, r := range sp.pts {
 		for l, ln := range lines {
-			b := ln.Field(r, nT)
+			// Line.Field with the unit direction already in hand.
+			d := sub(r, ln.Point)
+			u := ln.Dir
+			du := dot(d, u)
+			rho := sub(d, scale(u, du))
+			b := scale(cross(u, d), nT*k2pi/dot(rho, rho))
 			for j := range 3 {
 				phi[(3*i+j)*q+l] = b[j]
 			}
