@@ -416,8 +416,8 @@ func TestDemo(t *testing.T) {
 	for _, f := range doc.Findings {
 		switch f.Kind {
 		case "current-step":
-			// The fault is at chainage 112 m, between T23 and T24.
-			if f.From <= 112 && 112 <= f.To && f.Values != nil && f.Values[0].Value < 0 {
+			// The fault is at chainage 112.5 m, between T23 and T24.
+			if f.From <= 112.5 && 112.5 <= f.To && f.Values != nil && f.Values[0].Value < 0 {
 				fault = true
 			}
 		case "shallow-cover":
@@ -428,7 +428,7 @@ func TestDemo(t *testing.T) {
 		}
 	}
 	if !fault {
-		t.Error("the earth fault at chainage 112 m was not found")
+		t.Error("the earth fault at chainage 112.5 m was not found")
 	}
 	if !shallow {
 		t.Error("the shallow stretch at chainage 58-72 m was not found")
