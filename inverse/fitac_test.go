@@ -78,7 +78,7 @@ func TestFitLinesRobust(t *testing.T) {
 
 // TestSeparableJacobian checks the full Jacobian used for the covariance (geometry
 // columns: d(Phi c)/dtheta) against gonum finite differences, for two lines with free
-// azimuth and dip and AC strengths.
+// azimuth and dip and a dipole, with AC strengths.
 func TestSeparableJacobian(t *testing.T) {
 	pts := grid(3, 7, 2, 0.7, 0)
 	sv := newSurvey(&Problem{Points: pts, Fields: make([][3]float64, len(pts))})
@@ -91,7 +91,8 @@ func TestSeparableJacobian(t *testing.T) {
 	for i := range y {
 		y[i] = rng.NormFloat64() * 100
 	}
-	sp := newSeparable(pts, y, 2, BackgroundUniform, sv.centroid, geoms)
+	dips := []dipGeom{{pos: [3]float64{0.2, 0.3, -0.7}, lim: 10, zHi: -0.02, zLo: -20}}
+	sp := newSeparable(pts, y, 2, BackgroundUniform, sv.centroid, geoms, dips)
 	x, _, _ := sp.pack()
 	J, err := sp.fullJacobian(x)
 	if err != nil {

@@ -37,6 +37,9 @@ func FitLines(p *Problem, set *Settings) (*Result, error) {
 	if s.Count < 0 || s.Count > 8 {
 		return nil, fmt.Errorf("inverse: Settings.Count = %d, want 0 (automatic) to 8", s.Count)
 	}
+	if s.Dipoles < 0 || s.Dipoles > 4 {
+		return nil, fmt.Errorf("inverse: Settings.Dipoles = %d, want 0 to 4", s.Dipoles)
+	}
 	if len(p.Points) < 3 {
 		return nil, fmt.Errorf("inverse: %d readings are too few for a line fit", len(p.Points))
 	}
@@ -146,25 +149,33 @@ func (f *fitter) seedsFromData(d []float64) []seed {
 	return out
 }
 
+// start is one starting geometry.
+type start struct {
+	lines []lineGeom
+	dips  []dipGeom
+}
+
 // fitK fits k lines, seeding from the data (k = 1) or from the best (k-1)-line fit prev:
 // a new line at the peak of its residual, or one of its lines split into a close pair
-// (a cable and its return), then keeps the best.
+// (a cable and its return), then keeps the best. Settings.Dipoles point dipoles are
+// fitted with the lines.
 func (f *fitter) fitK(k int, prev *candidate) (*candidate, error) {
 	holdAz, holdDip, _, dip := f.holds()
-	var starts [][]lineGeom
+	var starts []start
 	if k == 1 || prev == nil {
 		for _, sd := range f.seedsFromData(f.sv.y) {
-			starts = append(starts, []lineGeom{f.sv.geomFrom(sd, holdAz, holdDip, dip, f.set.MinDepth)})
+			starts = append(starts, start{lines: []lineGeom{f.sv.geomFrom(sd, holdAz, holdDip, dip, f.set.MinDepth)}})
 		}
 	} else {
 		base := append([]lineGeom(nil), prev.sp.geom...)
+		dips := append([]dipGeom(nil), prev.sp.dips...)
 		res, err := prev.sp.fullResiduals(prev.x)
 		if err != nil {
 			return nil, err
 		}
 		for _, sd := range f.seedsFromData(res) {
 			g := append(append([]lineGeom(nil), base...), f.sv.geomFrom(sd, holdAz, holdDip, dip, f.set.MinDepth))
-			starts = append(starts, g)
+			starts = append(starts, start{g, dips})
 		}
 		for i := range base {
 			h := f.sv.zmean - base[i].z
@@ -175,12 +186,31 @@ func (f *fitter) fitK(k int, prev *candidate) (*candidate, error) {
 				b.s += d
 				g[i] = a
 				g = append(g, b)
-				starts = append(starts, g)
+				starts = append(starts, start{g, dips})
 			}
 		}
 	}
-	// Rank the starts by the projected sum of squares at the seed (one linear solve
-	// each), then iterate the most promising to convergence.
+	best, err := f.bestOf(starts, k == 1 && f.sv.single)
+	if err != nil {
+		return nil, fmt.Errorf("inverse: fitting %d line(s): %w", k, err)
+	}
+	for len(best.sp.dips) < f.set.Dipoles {
+		if best, err = f.addDipole(best); err != nil {
+			return nil, fmt.Errorf("inverse: fitting %d line(s) and %d dipole(s): %w", k, len(best.sp.dips)+1, err)
+		}
+	}
+	if f.set.Robust {
+		if err := f.reweight(best); err != nil {
+			return nil, err
+		}
+	}
+	return best, nil
+}
+
+// bestOf ranks the starts by the projected sum of squares at the seed (one linear
+// solve each) and iterates the most promising to convergence, stopping early when two
+// agree (or after the first when quick and it converged clear of the bounds).
+func (f *fitter) bestOf(starts []start, quick bool) (*candidate, error) {
 	type ranked struct {
 		sp  *separable
 		x0  []float64
@@ -188,8 +218,8 @@ func (f *fitter) fitK(k int, prev *candidate) (*candidate, error) {
 	}
 	var rs []ranked
 	var firstErr error
-	for _, g := range starts {
-		sp := newSeparable(f.sv.pts, f.sv.y, f.sv.nrhs, f.set.Background, f.sv.centroid, g)
+	for _, st := range starts {
+		sp := newSeparable(f.sv.pts, f.sv.y, f.sv.nrhs, f.set.Background, f.sv.centroid, st.lines, st.dips)
 		lmp, x0 := sp.problem()
 		project(x0, lmp.lower, lmp.upper)
 		r := make([]float64, lmp.m)
@@ -205,7 +235,7 @@ func (f *fitter) fitK(k int, prev *candidate) (*candidate, error) {
 		if firstErr == nil {
 			firstErr = errors.New("inverse: no starting geometry could be evaluated")
 		}
-		return nil, fmt.Errorf("inverse: fitting %d line(s): %w", k, firstErr)
+		return nil, firstErr
 	}
 	sort.Slice(rs, func(i, j int) bool { return rs[i].rss < rs[j].rss })
 	var best *candidate
@@ -220,9 +250,7 @@ func (f *fitter) fitK(k int, prev *candidate) (*candidate, error) {
 			continue
 		}
 		agree := best != nil && math.Abs(res.rss-best.rss) <= 1e-8*best.rss
-		// One line on one traverse has only offset and height to find: the best-ranked
-		// start suffices unless it failed to converge or stopped on a bound.
-		if k == 1 && f.sv.single && res.status.Converged() && !st.sp.atBound(res.x) {
+		if quick && res.status.Converged() && !st.sp.atBound(res.x) {
 			agree = true
 		}
 		if best == nil || res.rss < best.rss {
@@ -234,14 +262,42 @@ func (f *fitter) fitK(k int, prev *candidate) (*candidate, error) {
 		}
 	}
 	if best == nil {
-		return nil, fmt.Errorf("inverse: fitting %d line(s): %w", k, firstErr)
-	}
-	if f.set.Robust {
-		if err := f.reweight(best); err != nil {
-			return nil, err
-		}
+		return nil, firstErr
 	}
 	return best, nil
+}
+
+// addDipole adds one point dipole to a fit, seeded under the peak of its residual at
+// depths from the residual's half-width (the field of a dipole falls to half its peak
+// at about 0.77 times its depth to one side).
+func (f *fitter) addDipole(c *candidate) (*candidate, error) {
+	res, err := c.sp.fullResiduals(c.x)
+	if err != nil {
+		return nil, err
+	}
+	a := anomaly(res, len(f.sv.pts), f.sv.nrhs)
+	ip := peak(a)
+	p := f.sv.pts[ip]
+	amax := norm(a[ip])
+	hw := math.Inf(1)
+	for i, v := range a {
+		if norm(v) <= amax/2 {
+			hw = math.Min(hw, math.Hypot(f.sv.pts[i][0]-p[0], f.sv.pts[i][1]-p[1]))
+		}
+	}
+	if math.IsInf(hw, 1) {
+		hw = math.Max(f.sv.extent, 0.5)
+	}
+	h := hw / 0.77
+	lim := 2*f.sv.extent + 5
+	zHi := f.sv.zmin - f.set.MinDepth
+	var starts []start
+	for _, m := range []float64{1, 0.6, 1.7} {
+		d := dipGeom{pos: [3]float64{p[0], p[1], math.Min(p[2]-m*h, zHi)}, lim: lim, zHi: zHi,
+			anchor: f.sv.anchor, zLo: f.sv.zmin - 10*(f.sv.extent+5)}
+		starts = append(starts, start{append([]lineGeom(nil), c.sp.geom...), append(append([]dipGeom(nil), c.sp.dips...), d)})
+	}
+	return f.bestOf(starts, false)
 }
 
 // reweight runs iteratively reweighted least squares with Huber weights: residuals
@@ -334,6 +390,11 @@ func (f *fitter) guard(c *candidate) string {
 	if err != nil {
 		return err.Error()
 	}
+	for i, d := range c.sp.dips {
+		if d.pos[2] >= d.zHi-1e-9 {
+			return fmt.Sprintf("dipole %d sits at the minimum depth bound", i+1)
+		}
+	}
 	for i, g := range c.sp.geom {
 		if g.z >= g.zHi-1e-9 {
 			return fmt.Sprintf("line %d sits at the minimum depth bound", i+1)
@@ -343,12 +404,22 @@ func (f *fitter) guard(c *candidate) string {
 		}
 	}
 	for i, e := range sum.lines {
+		if e.Kind == "dipole" {
+			sig := false
+			for k := range 3 {
+				sig = sig || math.Abs(e.Moment[k]) > 3*e.MomentSigma[k]
+			}
+			if !sig {
+				return fmt.Sprintf("dipole %d moment is within 3 sigma of zero", i+1-len(c.sp.geom))
+			}
+			continue
+		}
 		if !(math.Abs(e.Current) > 3*e.CurrentSigma) {
 			return fmt.Sprintf("line %d current %.3g A is within 3 sigma (%.3g A) of zero", i+1, e.Current, e.CurrentSigma)
 		}
 	}
-	for i := range sum.lines {
-		for j := i + 1; j < len(sum.lines); j++ {
+	for i := range c.sp.geom {
+		for j := i + 1; j < len(c.sp.geom); j++ {
 			a, b := sum.lines[i], sum.lines[j]
 			d := norm(sub(a.Point, b.Point))
 			sa := math.Hypot(a.DepthSigma, a.OffsetSigma)

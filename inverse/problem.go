@@ -122,6 +122,11 @@ type Settings struct {
 	// descends along its direction). When nil the dip is fitted for areal surveys and
 	// held at 0 for a single traverse.
 	Dip *float64
+	// Dipoles is the number of point dipoles (ferrous objects: a valve, a buried drum)
+	// fitted together with the lines, so that their fields are not mistaken for
+	// currents; 0 fits none. Each is seeded under the peak of the residual of the
+	// fit without it.
+	Dipoles int
 	// MinDepth keeps each conductor at least this far (m) below the lowest sensor; 0
 	// means 0.02 m.
 	MinDepth float64
@@ -179,12 +184,15 @@ type Identifiable struct {
 
 // SourceEstimate is one fitted source with its uncertainties (one sigma).
 type SourceEstimate struct {
-	// Kind is "line" (or "dipole" for a point dipole given to FitStrengths).
+	// Kind is "line" or "dipole".
 	Kind string
-	// Point is the point on the line nearest the centroid of the readings (m ENU);
-	// Dir is the unit direction along which positive current flows, oriented so that
-	// the azimuth lies in [0, 180).
+	// Point is the point on the line nearest the centroid of the readings (m ENU), or
+	// the dipole's position; Dir is the unit direction along which positive current
+	// flows, oriented so that the azimuth lies in [0, 180) (zero for a dipole).
 	Point, Dir [3]float64
+	// Moment of a dipole in A m^2 (east, north, up) with one-sigma uncertainties; for
+	// AC the magnitude per axis. Zero for lines.
+	Moment, MomentSigma [3]float64
 	// Current in A along Dir (DC), or RMS current (AC, always >= 0).
 	Current, CurrentSigma float64
 	// Phase in degrees of the AC current phasor along Dir, in the time reference of the
@@ -192,7 +200,9 @@ type SourceEstimate struct {
 	// source. Zero for DC.
 	Phase, PhaseSigma                 float64
 	RelativePhase, RelativePhaseSigma float64
-	// Depth of Point below the depth reference (Result.DepthReference), m.
+	// Depth of Point below the depth reference (Result.DepthReference), m. For a
+	// dipole, Depth and Offset (east of the centroid) are its position; Offset north
+	// is Point[1].
 	Depth, DepthSigma float64
 	// Offset is the signed horizontal distance from the centroid of the readings to the
 	// line, positive to the right of Dir (east of a line running north), m.
@@ -221,7 +231,7 @@ type ModelScore struct {
 
 // Result is the outcome of FitLines or FitStrengths.
 type Result struct {
-	// Sources are the fitted lines, strongest first.
+	// Sources are the fitted lines, strongest first, then the dipoles.
 	Sources []SourceEstimate
 	// Background is the fitted uniform field in nT (east, north, up) with one-sigma
 	// uncertainties; for AC, BackgroundPhasor holds the complex background and

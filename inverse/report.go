@@ -217,6 +217,31 @@ func (f *fitter) summarise(c *candidate) (*summary, error) {
 		su.lines = append(su.lines, e)
 		off += g.nfree()
 	}
+	for di, d := range sp.dips {
+		e := SourceEstimate{Kind: "dipole", Point: d.pos}
+		sd := func(j int) float64 { return math.Sqrt(math.Max(su.cov.At(j, j), 0)) }
+		e.Offset, e.OffsetSigma = d.pos[0]-f.sv.centroid[0], sd(off)
+		e.Depth, e.DepthSigma = su.zref-d.pos[2], sd(off+2)
+		pu := unres[off] || unres[off+1] || unres[off+2]
+		e.Identifiable = Identifiable{Depth: !pu, Offset: !pu}
+		c0 := sp.dipCol(di)
+		for k := range 3 {
+			j := np + c0 + k
+			if nr == 1 {
+				e.Moment[k], e.MomentSigma[k] = su.v[j], sd(j)
+			} else {
+				e.Moment[k] = math.Hypot(su.v[j], su.v[j+q])
+				e.MomentSigma[k] = math.Max(sd(j), sd(j+q))
+			}
+		}
+		e.Notes = append(e.Notes, "point dipole: a magnetised (ferrous) object, not a current")
+		if pu {
+			e.Notes = append(e.Notes, "position not resolved by the data")
+			e.DepthSigma, e.OffsetSigma = 0, 0
+		}
+		su.lines = append(su.lines, e)
+		off += 3
+	}
 	return su, nil
 }
 
@@ -322,6 +347,10 @@ func paramNames(sp *separable) []string {
 			names = append(names, p+"dip")
 		}
 	}
+	for d := range sp.dips {
+		p := fmt.Sprintf("dipole%d.", d+1)
+		names = append(names, p+"east", p+"north", p+"up")
+	}
 	bgn := []string{"bg.e", "bg.n", "bg.u", "grad.ee", "grad.en", "grad.eu", "grad.nn", "grad.nu"}
 	for k := range sp.nrhs {
 		sfx := ""
@@ -330,6 +359,11 @@ func paramNames(sp *separable) []string {
 		}
 		for l := range sp.geom {
 			names = append(names, fmt.Sprintf("line%d.current%s", l+1, sfx))
+		}
+		for d := range sp.dips {
+			for _, ax := range []string{"e", "n", "u"} {
+				names = append(names, fmt.Sprintf("dipole%d.moment.%s%s", d+1, ax, sfx))
+			}
 		}
 		for j := range sp.bg.columns() {
 			names = append(names, bgn[j]+sfx)
@@ -355,17 +389,17 @@ func (f *fitter) report(c *candidate, scores []ModelScore) (*Result, error) {
 		SingleTraverse: f.sv.single,
 	}
 	np := sp.nparams()
-	nl, q, nr := len(sp.geom), sp.q, sp.nrhs
+	bc, q, nr := sp.bgCol(), sp.q, sp.nrhs
 	if nb := sp.bg.columns(); nb > 0 {
 		for j := range 3 {
-			re := su.v[np+nl+j]
-			sre := math.Sqrt(su.cov.At(np+nl+j, np+nl+j))
+			re := su.v[np+bc+j]
+			sre := math.Sqrt(su.cov.At(np+bc+j, np+bc+j))
 			if nr == 1 {
 				r.Background[j], r.BackgroundSigma[j] = re, sre
 				continue
 			}
-			im := su.v[np+q+nl+j]
-			sim := math.Sqrt(su.cov.At(np+q+nl+j, np+q+nl+j))
+			im := su.v[np+q+bc+j]
+			sim := math.Sqrt(su.cov.At(np+q+bc+j, np+q+bc+j))
 			r.BackgroundPhasor[j] = complex(re, im)
 			mag := math.Hypot(re, im)
 			r.Background[j] = mag
@@ -376,7 +410,7 @@ func (f *fitter) report(c *candidate, scores []ModelScore) (*Result, error) {
 			}
 		}
 		if nb == 8 && nr == 1 {
-			r.Gradient = append([]float64(nil), su.v[np+nl+3:np+nl+8]...)
+			r.Gradient = append([]float64(nil), su.v[np+bc+3:np+bc+8]...)
 		}
 	}
 	// Residuals and predictions, unweighted.

@@ -62,7 +62,8 @@ type separable struct {
 	bg   BackgroundModel
 	org  [3]float64 // background gradient origin
 	geom []lineGeom
-	q    int // basis columns: lines + background
+	dips []dipGeom
+	q    int // basis columns: lines, then 3 per dipole, then background
 
 	// workspace and cached state of the last evaluation
 	phi, qty, coef, tau, work []float64
@@ -71,15 +72,27 @@ type separable struct {
 	ok                        bool
 }
 
-func newSeparable(pts [][3]float64, y []float64, nrhs int, bg BackgroundModel, org [3]float64, geom []lineGeom) *separable {
+// dipGeom is the position of a fitted point dipole and its bounds.
+type dipGeom struct {
+	pos      [3]float64
+	lim, zHi float64 // horizontal box half-width about the anchor, top bound
+	anchor   [3]float64
+	zLo      float64
+}
+
+func newSeparable(pts [][3]float64, y []float64, nrhs int, bg BackgroundModel, org [3]float64, geom []lineGeom, dips []dipGeom) *separable {
 	m := 3 * len(pts)
-	sp := &separable{pts: pts, m: m, nrhs: nrhs, y: y, bg: bg, org: org, geom: geom}
-	sp.q = len(geom) + bg.columns()
+	sp := &separable{pts: pts, m: m, nrhs: nrhs, y: y, bg: bg, org: org, geom: geom, dips: dips}
+	sp.q = len(geom) + 3*len(dips) + bg.columns()
 	return sp
 }
 
+// dipCol is the first basis column of dipole i; bgCol that of the background.
+func (sp *separable) dipCol(i int) int { return len(sp.geom) + 3*i }
+func (sp *separable) bgCol() int       { return len(sp.geom) + 3*len(sp.dips) }
+
 func (sp *separable) nparams() int {
-	n := 0
+	n := 3 * len(sp.dips)
 	for i := range sp.geom {
 		n += sp.geom[i].nfree()
 	}
@@ -103,6 +116,11 @@ func (sp *separable) pack() (x, lo, hi []float64) {
 			hi = append(hi, 80*math.Pi/180)
 		}
 	}
+	for _, d := range sp.dips {
+		x = append(x, d.pos[0], d.pos[1], d.pos[2])
+		lo = append(lo, d.anchor[0]-d.lim, d.anchor[1]-d.lim, d.zLo)
+		hi = append(hi, d.anchor[0]+d.lim, d.anchor[1]+d.lim, d.zHi)
+	}
 	return x, lo, hi
 }
 
@@ -121,6 +139,10 @@ func (sp *separable) unpack(x []float64) {
 			k++
 		}
 	}
+	for i := range sp.dips {
+		sp.dips[i].pos = [3]float64{x[k], x[k+1], x[k+2]}
+		k += 3
+	}
 }
 
 var errSingularBasis = errors.New("inverse: the sources' fields are linearly dependent for this geometry")
@@ -135,8 +157,7 @@ func (sp *separable) weight(row int) float64 {
 // buildPhi fills the weighted basis matrix (m x q, row-major, nT per A or per nT).
 func (sp *separable) buildPhi(phi []float64) error {
 	q := sp.q
-	nl := len(sp.geom)
-	lines := make([]Line, nl)
+	lines := make([]Line, len(sp.geom))
 	for l := range sp.geom {
 		lines[l] = sp.geom[l].line()
 	}
@@ -154,11 +175,21 @@ func (sp *separable) buildPhi(phi []float64) error {
 				phi[(3*i+j)*q+l] = b[j]
 			}
 		}
+		for di, d := range sp.dips {
+			Dipole{Pos: d.pos}.Basis(r, basis[:3])
+			c0 := sp.dipCol(di)
+			for k := range 3 {
+				for j := range 3 {
+					phi[(3*i+j)*q+c0+k] = nT * basis[k][j]
+				}
+			}
+		}
 		if nb := sp.bg.columns(); nb > 0 {
 			bgc.Basis(r, basis[:nb])
+			c0 := sp.bgCol()
 			for k := range nb {
 				for j := range 3 {
-					phi[(3*i+j)*q+nl+k] = basis[k][j]
+					phi[(3*i+j)*q+c0+k] = basis[k][j]
 				}
 			}
 		}
@@ -314,6 +345,25 @@ func (sp *separable) dPhiC(dst []float64, np int) {
 			}
 		}
 		p += g.nfree()
+	}
+	for di, dg := range sp.dips {
+		dp := Dipole{Pos: dg.pos}
+		c0 := sp.dipCol(di)
+		for i, r := range sp.pts {
+			for h := range nr {
+				m := [3]float64{sp.coef[c0*nr+h], sp.coef[(c0+1)*nr+h], sp.coef[(c0+2)*nr+h]}
+				_, dPos := dp.FieldJac(r, m)
+				for j := range 3 {
+					row := 3*i + j
+					w := sp.weight(row) * nT
+					base := dst[row*cols:]
+					for k := range 3 {
+						base[(p+k)*nr+h] = dPos[j][k] * w
+					}
+				}
+			}
+		}
+		p += 3
 	}
 }
 
