@@ -92,6 +92,13 @@
 // bound, and no two lines coincide within their uncertainty (a line with no current has
 // no identifiable position). Result.Criteria reports the values.
 //
+// # Ferrous objects
+//
+// A magnetised object (a valve, a buried drum) has a dipole field that a line fit would
+// absorb as a spurious or biased current. Settings.Dipoles fits point dipoles with the
+// lines, each seeded under the peak of the residual of the fit without it, with its
+// position and moment (three more linear strengths) reported with sigmas.
+//
 // # Uncertainty
 //
 // The covariance comes from the full Jacobian [d(Phi c)/dtheta, Phi] at the solution,
