@@ -108,6 +108,18 @@ func TestFitSineAgreesWithDFT(t *testing.T) {
 	if math.Abs(f.C-real(coef[0])/n) > tol*f.C {
 		t.Errorf("constant: fit %.9f, DFT %.9f", f.C, real(coef[0])/n)
 	}
+	// The windowed demodulator (shared-basis fast path) gives the same
+	// phasor: with the window starting at t = 0, B = √2 X_k / N.
+	res, err := DemodulateColumns(&Columns{Time: tt, B: [3][]float64{y, y, y}}, &DemodSettings{Freq: 50, Window: 0.2})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if res.Uniform != 1 || len(res.Windows) != 1 {
+		t.Fatalf("%d windows (%d uniform), want 1 on the fast path", len(res.Windows), res.Uniform)
+	}
+	if want := complex(math.Sqrt2/n, 0) * bin; cmplx.Abs(res.Windows[0].B[0]-want) > tol*cmplx.Abs(want) {
+		t.Errorf("demodulated %v, DFT gives %v", res.Windows[0].B[0], want)
+	}
 	// The DFT bin and the phasor describe the same tone: √2 |P| = amplitude.
 	if got := math.Sqrt2 * cmplx.Abs(f.Phasor()); math.Abs(got-dftAmp) > tol*dftAmp {
 		t.Errorf("√2|phasor| = %.12f, want %.12f", got, dftAmp)
