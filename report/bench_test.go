@@ -41,3 +41,16 @@ func BenchmarkWriteHTML(b *testing.B) {
 		}
 	}
 }
+
+// BenchmarkBuild measures the report's side of locate: eight fitted
+// traverses of 31 readings into a document with route and findings (the
+// fits themselves are done once, outside the loop).
+func BenchmarkBuild(b *testing.B) {
+	fits := kestrelMoor(b)
+	set := &BuildSettings{Noise: 2, SensorHeight: 0.3, MinCover: 0.6}
+	for b.Loop() {
+		if _, err := Build(Document{}, fits, set); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
