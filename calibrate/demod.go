@@ -136,6 +136,23 @@ func (c *Columns) runs() []run {
 	return out
 }
 
+// splitGaps splits runs where the time step exceeds maxStep, so that no
+// window spans a pause in logging.
+func (c *Columns) splitGaps(runs []run, maxStep float64) []run {
+	var out []run
+	for _, r := range runs {
+		lo := r.lo
+		for i := r.lo + 1; i < r.hi; i++ {
+			if c.Time[i]-c.Time[i-1] > maxStep {
+				out = append(out, run{lo, i})
+				lo = i
+			}
+		}
+		out = append(out, run{lo, r.hi})
+	}
+	return out
+}
+
 // sampleInterval is the median positive time step within runs.
 func (c *Columns) sampleInterval(runs []run) float64 {
 	// The median of up to 4096 steps taken from the starts of runs.
@@ -171,8 +188,10 @@ func (c *Columns) sampleInterval(runs []run) float64 {
 // DemodulateColumns fits a sine (three-parameter, or four-parameter with
 // EstimateFreq) to each axis in sliding windows and returns one Window
 // each, with warnings for too few cycles and frequency drift. Windows hold
-// a whole number of samples, never straddle a group or a break in time,
-// and a run's tail shorter than a window is dropped.
+// a whole number of samples and never straddle a change of group, a time
+// that does not increase, or a pause (a step above 1.5 sample intervals);
+// a run's tail shorter than a window is dropped. Windows whose times sit
+// on a uniform grid share one precomputed basis; others get their own.
 func DemodulateColumns(c *Columns, set *DemodSettings) (*DemodResult, error) {
 	var ds DemodSettings
 	if set != nil {
@@ -203,6 +222,7 @@ func DemodulateColumns(c *Columns, set *DemodSettings) (*DemodResult, error) {
 	if !(dt > 0) {
 		return nil, errors.New("calibrate: demodulate: fewer than two samples in time order")
 	}
+	runs = c.splitGaps(runs, 1.5*dt)
 	fs := 1 / dt
 	res := &DemodResult{}
 	if ds.Freq == 0 {
@@ -401,6 +421,13 @@ func (d *demodulator) window(lo, hi int) error {
 			s += v
 		}
 		w.Pos[k] = s / float64(hi-lo)
+		if math.IsNaN(w.Pos[k]) || math.IsInf(w.Pos[k], 0) {
+			for i := lo; i < hi; i++ {
+				if v := c.Pos[k][i]; math.IsNaN(v) || math.IsInf(v, 0) {
+					return fmt.Errorf("calibrate: row %d: column %s is %g", i, [3]string{"x", "y", "z"}[k], v)
+				}
+			}
+		}
 	}
 	tpl := d.tpl
 	if set.EstimateFreq {

@@ -268,6 +268,23 @@ func TestDemodulateGroupsAndErrors(t *testing.T) {
 	if got := strings.Join(groups, ","); got != "T1,T1,T2,T2" || res.Dropped != 200 {
 		t.Errorf("groups %s, dropped %d; want T1,T1,T2,T2 and 200", got, res.Dropped)
 	}
+	// A pause in logging inside T2 (rows 700 on, 5 s later): T2 splits into
+	// 250 rows (1 window, 50 dropped) and 300 rows (1 window, 100 dropped).
+	for i := 700; i < 1000; i++ {
+		c.Time[i] += 5
+	}
+	res, err = DemodulateColumns(c, &DemodSettings{Freq: 50, Window: 0.1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(res.Windows) != 4 || res.Dropped != 200 || res.General != 0 {
+		t.Errorf("after a pause: %d windows, %d dropped, %d general; want 4, 200, 0", len(res.Windows), res.Dropped, res.General)
+	}
+	c.Pos[0][555] = math.NaN()
+	if _, err := DemodulateColumns(c, &DemodSettings{Freq: 50, Window: 0.1}); err == nil || !strings.Contains(err.Error(), "row 555: column x") {
+		t.Errorf("err = %v, want one naming row 555 column x", err)
+	}
+	c.Pos[0][555] = 0
 	c.B[1][321] = math.NaN()
 	if _, err := DemodulateColumns(c, &DemodSettings{Freq: 50}); err == nil || !strings.Contains(err.Error(), "row 321: column by") {
 		t.Errorf("err = %v, want one naming row 321 column by", err)
