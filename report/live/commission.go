@@ -1,0 +1,144 @@
+package live
+
+import (
+	"context"
+	"encoding/json"
+	"errors"
+	"fmt"
+
+	"github.com/nats-io/nats.go/jetstream"
+)
+
+// storedGeometry is a commissioned geometry in uc_state.
+type storedGeometry struct {
+	Conductors []ConductorConfig `json:"conductors"`
+	From       float64           `json:"from"`
+	To         float64           `json:"to"`
+	Worker     string            `json:"worker"`
+}
+
+// loadGeometry sets up the estimator: from the site file for model
+// "fixed", from uc_state for "commission" when it was commissioned before
+// (by this or another worker).
+func (w *assetWorker) loadGeometry(ctx context.Context) error {
+	a := w.asset
+	conds := a.Conductors
+	if a.Model == "commission" {
+		e, err := w.svc.stores.State.Get(ctx, geometryKey(a.Name))
+		if errors.Is(err, jetstream.ErrKeyNotFound) {
+			return nil // commission from the data
+		}
+		if err != nil {
+			return fmt.Errorf("live: asset %s: geometry: %w", a.Name, err)
+		}
+		var g storedGeometry
+		if err := json.Unmarshal(e.Value(), &g); err != nil {
+			return fmt.Errorf("live: asset %s: stored geometry: %w", a.Name, err)
+		}
+		conds = g.Conductors
+	}
+	return w.setGeometry(conds)
+}
+
+func (w *assetWorker) setGeometry(conds []ConductorConfig) error {
+	est, err := w.svc.newEstimator(w.asset.Mode, conds)
+	if err != nil {
+		return fmt.Errorf("live: asset %s: %w", w.asset.Name, err)
+	}
+	w.proc.est = est
+	w.proc.names = w.proc.names[:0]
+	for _, c := range conds {
+		w.proc.names = append(w.proc.names, c.Name)
+	}
+	return nil
+}
+
+// commission holds windows until the commissioning period is covered,
+// fits the geometry to their mean readings, stores it, then publishes
+// every held window with it.
+func (w *assetWorker) commission(win *Window) error {
+	w.pending = append(w.pending, win)
+	w.pendDur += win.End - win.Start
+	if w.pendDur+1e-9 < w.asset.Commission.Seconds() {
+		return nil
+	}
+	if w.svc.commissioner == nil {
+		return fmt.Errorf("live: asset %s: model \"commission\" but no commissioner is configured", w.asset.Name)
+	}
+	// Average each sensor's reduced reading over the held windows.
+	var sum SolveInput
+	counts := map[int]int{}
+	pos := map[int][3]float64{}
+	fields := map[int][3]float64{}
+	phasors := map[int][3]complex128{}
+	reds := make([]*reduced, len(w.pending))
+	for i, pw := range w.pending {
+		r := w.proc.reduce(pw)
+		reds[i] = r
+		for j, si := range r.used {
+			counts[si]++
+			pos[si] = r.in.Points[j]
+			if r.in.Fields != nil {
+				f := fields[si]
+				for k := range 3 {
+					f[k] += r.in.Fields[j][k]
+				}
+				fields[si] = f
+			} else {
+				p := phasors[si]
+				for k := range 3 {
+					p[k] += r.in.Phasors[j][k]
+				}
+				phasors[si] = p
+			}
+		}
+		sum.Sigma = r.in.Sigma
+	}
+	for si := range w.asset.Sensors {
+		n := counts[si]
+		if n == 0 {
+			continue
+		}
+		sum.Points = append(sum.Points, pos[si])
+		if w.asset.Mode == "ac" {
+			p := phasors[si]
+			for k := range 3 {
+				p[k] /= complex(float64(n), 0)
+			}
+			sum.Phasors = append(sum.Phasors, p)
+		} else {
+			f := fields[si]
+			for k := range 3 {
+				f[k] /= float64(n)
+			}
+			sum.Fields = append(sum.Fields, f)
+		}
+	}
+	conds, err := w.svc.commissioner.Commission(&sum, len(w.asset.Conductors))
+	if err != nil {
+		w.log.Warn("commissioning failed; trying again with more data", "err", err, "windows", len(w.pending))
+		if len(w.pending) > 20*int(w.asset.Commission.Seconds()/w.asset.Window.Seconds()+1) {
+			return fmt.Errorf("live: asset %s: commissioning: %w", w.asset.Name, err)
+		}
+		return nil
+	}
+	g := storedGeometry{Conductors: conds, From: w.pending[0].Start, To: win.End, Worker: w.svc.id}
+	data, _ := json.Marshal(g)
+	ctx, cancel := context.WithTimeout(context.Background(), 10e9)
+	defer cancel()
+	if _, err := w.svc.stores.State.Put(ctx, geometryKey(w.asset.Name), data); err != nil {
+		return fmt.Errorf("live: asset %s: store geometry: %w", w.asset.Name, err)
+	}
+	w.log.Info("asset commissioned", "conductors", len(conds), "from", g.From, "to", g.To)
+	if err := w.setGeometry(conds); err != nil {
+		return err
+	}
+	held := w.pending
+	w.pending, w.pendDur = nil, 0
+	for i, pw := range held {
+		if err := w.publishWindow(pw, reds[i]); err != nil {
+			return err
+		}
+	}
+	return nil
+}

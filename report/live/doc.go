@@ -1,0 +1,64 @@
+// Package live is the continuous pipeline on a data server: it reads the
+// sensor batches of fixed magnetometers from the broker (see package
+// ingest/broker for subjects and payloads), assembles them into windows
+// per asset across its sensors, calibrates, demodulates (AC), solves for
+// the conductor currents with the geometry held, and publishes estimates
+// and alarms, keeping history and latest values in the broker. Several
+// workers share the assets through leases; an HTTP API serves health,
+// metrics, estimates and alarms.
+//
+// # Windows
+//
+// With window length L, a sample at time t belongs to window
+// k = floor(t/L); the window spans [kL, (k+1)L). It closes when every
+// sensor's next expected sample (its last time plus its sample interval)
+// falls in a later window, when the furthest sensor is Grace past its end
+// (the lagging sensors are reported silent), or after Idle of wall-clock
+// time without data. Batches that start at or before a sensor's last
+// sample are dead-lettered as out-of-order; batches entirely inside
+// published windows as late.
+//
+// # Reduction and solve
+//
+// Each sensor's samples are corrected by its calibration
+// (b = M (raw - o)), rotated to east-north-up by its orientation
+//
+//	b_ENU = Rz(yaw) Ry(pitch) Rx(roll) b_sensor
+//
+// and reduced to one reading: for DC the window mean; for AC the complex
+// RMS phasor per axis from a three-parameter sine fit at the asset's
+// frequency (IEEE Std 1057, IEEE Std 1241), referenced to absolute time so
+// phases agree across sensors. With a per-sample noise sigma the reading
+// noise is sigma/sqrt(n) (mean of n samples; each quadrature of a sine fit
+// over n samples). The readings go to the fixed-geometry linear solve
+// (the field is linear in the currents and a uniform background,
+// B = Phi(geometry) c; Golub & Pereyra 1973), which returns currents with
+// one-sigma uncertainties from the covariance s^2 (J^T J)^-1.
+//
+// # Exactly one estimate per window
+//
+// An asset is processed by the worker holding its lease (a key in the
+// uc_lease bucket that expires LeaseTTL after the holder stops renewing
+// it). After each group of windows the holder writes a checkpoint: the
+// end of the last published window and the first UC_DATA sequence still
+// feeding an open window. A successor reads from that sequence, drops
+// samples before that end, and rebuilds the same windows. Estimates are
+// published with the message id "<asset>/<window index>", so the
+// broker's deduplication stores a window published twice (holder died
+// between publishing and checkpointing) only once.
+//
+// # Alarms
+//
+// over-current (|I| above max_current), imbalance (|sum of the balance
+// conductors' current phasors| above max_imbalance: go and return should
+// cancel; a difference is current leaking to earth), step (change between
+// consecutive windows above step), silent (no samples), stuck (one value
+// repeated on an axis for a whole window), degraded (reduced chi-square
+// above max_chi2, or the solve failed). Each is published on
+// uc.alarm.<asset>.<kind> with message id "<asset>/<window>/<kind>/<subject>".
+//
+// References: IEEE Std 1057-2017 and IEEE Std 1241-2010 (sine fitting);
+// G. H. Golub and V. Pereyra, SIAM J. Numer. Anal. 10(2):413-432 (1973)
+// (separable least squares); the NATS JetStream documentation (message
+// deduplication, key-value buckets, ordered consumers).
+package live

@@ -1,0 +1,66 @@
+package live
+
+// Estimate is what the service publishes for one asset and window on
+// uc.est.<asset>, keeps as the latest value in uc_latest and lists in the
+// history API. It is JSON; field names are stable.
+type Estimate struct {
+	Asset string `json:"asset"`
+	// Window is the window index; Start = Window * (End - Start).
+	Window int64   `json:"window"`
+	Start  float64 `json:"start"` // s, same clock as the sensor times
+	End    float64 `json:"end"`
+	Mode   string  `json:"mode"` // "dc" or "ac"
+	// Frequency is the AC frequency used, Hz.
+	Frequency  float64             `json:"frequency,omitempty"`
+	Conductors []ConductorEstimate `json:"conductors"`
+	// Background is the uniform field fitted with the currents (DC), nT ENU.
+	Background *[3]float64 `json:"background_nt,omitempty"`
+	// RMS is the root-mean-square residual, nT; Chi2 and DOF describe the
+	// fit; Quality is "good" or "degraded".
+	RMS     float64 `json:"rms_nt"`
+	Chi2    float64 `json:"chi2"`
+	DOF     int     `json:"dof"`
+	Quality string  `json:"quality"`
+	// Sensors used, samples used, and sensors left out with why.
+	Sensors int               `json:"sensors"`
+	Samples int               `json:"samples"`
+	Missing map[string]string `json:"missing,omitempty"`
+	// Closed says why the window closed: complete, grace or idle.
+	Closed string `json:"closed"`
+	Worker string `json:"worker"`
+}
+
+// ConductorEstimate is one conductor's current in a window.
+type ConductorEstimate struct {
+	Name string `json:"name"`
+	// Current is A, signed along the conductor's direction (RMS for AC).
+	Current      float64 `json:"current_a"`
+	CurrentSigma float64 `json:"current_sigma_a"`
+	// Phase is degrees relative to cos(2 pi f t) on the sensor clock (AC).
+	Phase      *float64 `json:"phase_deg,omitempty"`
+	PhaseSigma *float64 `json:"phase_sigma_deg,omitempty"`
+}
+
+// Alarm is published on uc.alarm.<asset>.<kind>.
+type Alarm struct {
+	Asset  string  `json:"asset"`
+	Kind   string  `json:"kind"` // see the Alarm* constants
+	Window int64   `json:"window"`
+	Start  float64 `json:"start"`
+	End    float64 `json:"end"`
+	// Subject is the conductor or sensor the alarm is about ("" for the fit).
+	Subject   string  `json:"subject,omitempty"`
+	Value     float64 `json:"value"`
+	Threshold float64 `json:"threshold"`
+	Message   string  `json:"message"`
+}
+
+// Alarm kinds.
+const (
+	AlarmOverCurrent = "over-current" // |I| above alarms.max_current
+	AlarmImbalance   = "imbalance"    // go/return currents do not cancel: leakage
+	AlarmStep        = "step"         // current changed by more than alarms.step
+	AlarmSilent      = "silent"       // sensor sent nothing in the window
+	AlarmStuck       = "stuck"        // sensor repeated one value on an axis
+	AlarmDegraded    = "degraded"     // reduced chi-square above alarms.max_chi2, or the solve failed
+)

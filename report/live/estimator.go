@@ -1,0 +1,38 @@
+package live
+
+// Estimator solves one window for the conductor currents with the
+// geometry held: the fast path. NewInverseEstimator gives the one built on
+// the inverse package's fixed-geometry linear solve; tests may supply
+// their own.
+type Estimator interface {
+	Solve(in *SolveInput) (*SolveOutput, error)
+}
+
+// SolveInput is one window reduced to one reading per sensor.
+type SolveInput struct {
+	Points  [][3]float64    // sensor positions, m ENU
+	Fields  [][3]float64    // DC: window-mean field, nT ENU
+	Phasors [][3]complex128 // AC: complex RMS field, nT ENU
+	// Sigma is the one-sigma error of one reading component, nT; 0 means
+	// estimate it from the residuals.
+	Sigma float64
+}
+
+// SolveOutput holds the strengths in the order of the conductors.
+type SolveOutput struct {
+	Current, CurrentSigma []float64 // A
+	Phase, PhaseSigma     []float64 // degrees (AC), nil for DC
+	Background            *[3]float64
+	RMS, Chi2             float64
+	DOF                   int
+}
+
+// Commissioner fits the conductor geometry from commissioning data (the
+// mean readings of the first minutes). count is the number of conductors
+// expected, 0 to choose.
+type Commissioner interface {
+	Commission(in *SolveInput, count int) ([]ConductorConfig, error)
+}
+
+// NewEstimatorFunc builds an Estimator for a geometry.
+type NewEstimatorFunc func(mode string, conductors []ConductorConfig) (Estimator, error)

@@ -1,0 +1,300 @@
+package live
+
+import (
+	"context"
+	"crypto/subtle"
+	"encoding/csv"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"net"
+	"net/http"
+	"strconv"
+	"strings"
+	"time"
+
+	"github.com/nats-io/nats.go"
+	"github.com/nats-io/nats.go/jetstream"
+	"github.com/prometheus/client_golang/prometheus/promhttp"
+)
+
+// Handler returns the HTTP API:
+//
+//	GET  /healthz                          200 while the process runs
+//	GET  /readyz                           200 when connected to the broker with streams set up
+//	GET  /metrics                          Prometheus metrics (private registry)
+//	GET  /api/v1/assets                    assets, their settings and which worker holds each
+//	GET  /api/v1/assets/{asset}/latest     latest estimate
+//	GET  /api/v1/assets/{asset}/history    estimates with from <= start < to (?from=&to=&limit=&format=csv)
+//	GET  /api/v1/alarms                    alarms, newest last (?asset=&kind=&from=&to=&limit=)
+//	POST /api/v1/assets/{asset}/recommission  forget a commissioned geometry (token)
+//
+// Times in queries are seconds on the sensor clock (Unix seconds for live
+// data) or RFC 3339. Read endpoints are open when the API listens on
+// loopback; otherwise, and for every state-changing endpoint, the request
+// needs "Authorization: Bearer TOKEN" with the site's service token.
+func (s *Service) Handler() http.Handler {
+	mux := http.NewServeMux()
+	mux.HandleFunc("GET /healthz", func(w http.ResponseWriter, r *http.Request) { fmt.Fprintln(w, "ok") })
+	mux.HandleFunc("GET /readyz", s.readyz)
+	mux.Handle("GET /metrics", s.read(promhttp.HandlerFor(s.met.reg, promhttp.HandlerOpts{Registry: s.met.reg})))
+	mux.Handle("GET /api/v1/assets", s.read(http.HandlerFunc(s.assets)))
+	mux.Handle("GET /api/v1/assets/{asset}/latest", s.read(http.HandlerFunc(s.latest)))
+	mux.Handle("GET /api/v1/assets/{asset}/history", s.read(http.HandlerFunc(s.history)))
+	mux.Handle("GET /api/v1/alarms", s.read(http.HandlerFunc(s.alarmList)))
+	mux.Handle("POST /api/v1/assets/{asset}/recommission", s.write(http.HandlerFunc(s.recommission)))
+	return mux
+}
+
+func (s *Service) readyz(w http.ResponseWriter, r *http.Request) {
+	select {
+	case <-s.ready:
+	default:
+		http.Error(w, "starting", http.StatusServiceUnavailable)
+		return
+	}
+	if s.nc.Status() != nats.CONNECTED {
+		http.Error(w, "broker "+s.nc.Status().String(), http.StatusServiceUnavailable)
+		return
+	}
+	fmt.Fprintln(w, "ready")
+}
+
+func (s *Service) loopback() bool {
+	host, _, err := net.SplitHostPort(s.HTTPAddr())
+	if err != nil {
+		return false
+	}
+	ip := net.ParseIP(host)
+	return host == "localhost" || (ip != nil && ip.IsLoopback())
+}
+
+func (s *Service) authorised(r *http.Request) bool {
+	tok := s.site.Service.Token
+	if tok == "" {
+		return false
+	}
+	got, ok := strings.CutPrefix(r.Header.Get("Authorization"), "Bearer ")
+	return ok && subtle.ConstantTimeCompare([]byte(got), []byte(tok)) == 1
+}
+
+func (s *Service) read(h http.Handler) http.Handler {
+	return http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
+		if !s.loopback() && !s.authorised(r) {
+			httpError(w, http.StatusUnauthorized, "a bearer token is required off loopback")
+			return
+		}
+		h.ServeHTTP(w, r)
+	})
+}
+
+func (s *Service) write(h http.Handler) http.Handler {
+	return http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
+		if s.site.Service.Token == "" {
+			httpError(w, http.StatusForbidden, "no service token is configured, so state-changing requests are disabled")
+			return
+		}
+		if !s.authorised(r) {
+			httpError(w, http.StatusUnauthorized, "missing or wrong bearer token")
+			return
+		}
+		h.ServeHTTP(w, r)
+	})
+}
+
+func httpError(w http.ResponseWriter, code int, msg string) {
+	w.Header().Set("Content-Type", "application/json")
+	w.WriteHeader(code)
+	json.NewEncoder(w).Encode(map[string]string{"error": msg})
+}
+
+func writeJSON(w http.ResponseWriter, v any) {
+	w.Header().Set("Content-Type", "application/json")
+	enc := json.NewEncoder(w)
+	enc.SetIndent("", "  ")
+	enc.Encode(v)
+}
+
+// AssetInfo is one entry of GET /api/v1/assets.
+type AssetInfo struct {
+	Name        string   `json:"name"`
+	Description string   `json:"description,omitempty"`
+	Mode        string   `json:"mode"`
+	Frequency   float64  `json:"frequency,omitempty"`
+	Window      string   `json:"window"`
+	Model       string   `json:"model"`
+	Sensors     []string `json:"sensors"`
+	Conductors  []string `json:"conductors"`
+	Worker      string   `json:"worker,omitempty"` // lease holder
+}
+
+func (s *Service) assets(w http.ResponseWriter, r *http.Request) {
+	out := []AssetInfo{}
+	for _, a := range s.site.Assets {
+		ai := AssetInfo{Name: a.Name, Description: a.Description, Mode: a.Mode, Frequency: a.Frequency,
+			Window: a.Window.String(), Model: a.Model, Sensors: []string{}, Conductors: []string{}}
+		for _, sn := range a.Sensors {
+			ai.Sensors = append(ai.Sensors, sn.Name)
+		}
+		for _, c := range a.Conductors {
+			ai.Conductors = append(ai.Conductors, c.Name)
+		}
+		if e, err := s.stores.Lease.Get(r.Context(), a.Name); err == nil {
+			ai.Worker = string(e.Value())
+		}
+		out = append(out, ai)
+	}
+	writeJSON(w, out)
+}
+
+func (s *Service) assetOr404(w http.ResponseWriter, r *http.Request) *AssetConfig {
+	a := s.site.Asset(r.PathValue("asset"))
+	if a == nil {
+		httpError(w, http.StatusNotFound, fmt.Sprintf("no asset %q in the site file", r.PathValue("asset")))
+	}
+	return a
+}
+
+func (s *Service) latest(w http.ResponseWriter, r *http.Request) {
+	a := s.assetOr404(w, r)
+	if a == nil {
+		return
+	}
+	e, err := s.stores.Latest.Get(r.Context(), a.Name)
+	if errors.Is(err, jetstream.ErrKeyNotFound) {
+		httpError(w, http.StatusNotFound, "no estimate yet for "+a.Name)
+		return
+	}
+	if err != nil {
+		httpError(w, http.StatusBadGateway, err.Error())
+		return
+	}
+	w.Header().Set("Content-Type", "application/json")
+	w.Write(e.Value())
+}
+
+// query holds the parsed time range and limit of a listing.
+type query struct {
+	from, to float64
+	limit    int
+}
+
+func parseQuery(r *http.Request) (query, error) {
+	q := query{from: -1e300, to: 1e300, limit: 100000}
+	for _, k := range []string{"from", "to"} {
+		v := r.URL.Query().Get(k)
+		if v == "" {
+			continue
+		}
+		t, err := parseTime(v)
+		if err != nil {
+			return q, fmt.Errorf("parameter %s: %q is neither seconds nor an RFC 3339 time", k, v)
+		}
+		if k == "from" {
+			q.from = t
+		} else {
+			q.to = t
+		}
+	}
+	if v := r.URL.Query().Get("limit"); v != "" {
+		n, err := strconv.Atoi(v)
+		if err != nil || n <= 0 {
+			return q, fmt.Errorf("parameter limit: %q is not a positive whole number", v)
+		}
+		q.limit = n
+	}
+	return q, nil
+}
+
+func parseTime(v string) (float64, error) {
+	if f, err := strconv.ParseFloat(v, 64); err == nil {
+		return f, nil
+	}
+	t, err := time.Parse(time.RFC3339Nano, v)
+	if err != nil {
+		return 0, err
+	}
+	return float64(t.UnixNano()) / 1e9, nil
+}
+
+func (s *Service) history(w http.ResponseWriter, r *http.Request) {
+	a := s.assetOr404(w, r)
+	if a == nil {
+		return
+	}
+	q, err := parseQuery(r)
+	if err != nil {
+		httpError(w, http.StatusBadRequest, err.Error())
+		return
+	}
+	ests, err := s.History(r.Context(), a.Name, q.from, q.to, q.limit)
+	if err != nil {
+		httpError(w, http.StatusBadGateway, err.Error())
+		return
+	}
+	if r.URL.Query().Get("format") == "csv" {
+		writeEstimatesCSV(w, ests)
+		return
+	}
+	writeJSON(w, ests)
+}
+
+// writeEstimatesCSV writes one row per window and conductor.
+func writeEstimatesCSV(w http.ResponseWriter, ests []Estimate) {
+	w.Header().Set("Content-Type", "text/csv")
+	cw := csv.NewWriter(w)
+	cw.Write([]string{"asset", "window", "start", "end", "conductor", "current_a", "current_sigma_a", "phase_deg", "phase_sigma_deg", "rms_nt", "chi2", "dof", "quality", "sensors"})
+	f := func(v float64) string { return strconv.FormatFloat(v, 'g', 10, 64) }
+	for _, e := range ests {
+		for _, c := range e.Conductors {
+			ph, phs := "", ""
+			if c.Phase != nil {
+				ph, phs = f(*c.Phase), f(*c.PhaseSigma)
+			}
+			cw.Write([]string{e.Asset, strconv.FormatInt(e.Window, 10), f(e.Start), f(e.End), c.Name, f(c.Current), f(c.CurrentSigma),
+				ph, phs, f(e.RMS), f(e.Chi2), strconv.Itoa(e.DOF), e.Quality, strconv.Itoa(e.Sensors)})
+		}
+		if len(e.Conductors) == 0 {
+			cw.Write([]string{e.Asset, strconv.FormatInt(e.Window, 10), f(e.Start), f(e.End), "", "", "", "", "", f(e.RMS), f(e.Chi2), strconv.Itoa(e.DOF), e.Quality, strconv.Itoa(e.Sensors)})
+		}
+	}
+	cw.Flush()
+}
+
+func (s *Service) alarmList(w http.ResponseWriter, r *http.Request) {
+	q, err := parseQuery(r)
+	if err != nil {
+		httpError(w, http.StatusBadRequest, err.Error())
+		return
+	}
+	asset, kind := r.URL.Query().Get("asset"), r.URL.Query().Get("kind")
+	if asset != "" && s.site.Asset(asset) == nil {
+		httpError(w, http.StatusNotFound, fmt.Sprintf("no asset %q in the site file", asset))
+		return
+	}
+	list, err := s.Alarms(r.Context(), asset, kind, q.from, q.to, q.limit)
+	if err != nil {
+		httpError(w, http.StatusBadGateway, err.Error())
+		return
+	}
+	writeJSON(w, list)
+}
+
+func (s *Service) recommission(w http.ResponseWriter, r *http.Request) {
+	a := s.assetOr404(w, r)
+	if a == nil {
+		return
+	}
+	if a.Model != "commission" {
+		httpError(w, http.StatusConflict, fmt.Sprintf("asset %s has model %q; only \"commission\" assets can be recommissioned", a.Name, a.Model))
+		return
+	}
+	ctx, cancel := context.WithTimeout(r.Context(), 10*time.Second)
+	defer cancel()
+	if err := s.stores.State.Delete(ctx, geometryKey(a.Name)); err != nil {
+		httpError(w, http.StatusBadGateway, err.Error())
+		return
+	}
+	s.log.Info("geometry forgotten; the asset is commissioned again when next acquired", "asset", a.Name)
+	writeJSON(w, map[string]string{"asset": a.Name, "status": "geometry forgotten; commissioned again from new data when the asset is next acquired"})
+}

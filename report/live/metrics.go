@@ -1,0 +1,56 @@
+package live
+
+import (
+	"github.com/prometheus/client_golang/prometheus"
+	"github.com/prometheus/client_golang/prometheus/collectors"
+)
+
+// metrics are the service's Prometheus series, on a private registry.
+type metrics struct {
+	reg         *prometheus.Registry
+	messages    *prometheus.CounterVec   // asset, outcome
+	deadLetters *prometheus.CounterVec   // reason
+	samples     *prometheus.CounterVec   // asset
+	windows     *prometheus.CounterVec   // asset, closed
+	estimates   *prometheus.CounterVec   // asset, result
+	alarms      *prometheus.CounterVec   // asset, kind
+	stage       *prometheus.HistogramVec // stage
+	latency     *prometheus.HistogramVec // asset
+	pending     *prometheus.GaugeVec     // asset
+	dataLag     *prometheus.GaugeVec     // asset
+	leases      prometheus.Gauge
+	takeovers   prometheus.Counter
+}
+
+func newMetrics() *metrics {
+	m := &metrics{reg: prometheus.NewRegistry()}
+	m.messages = prometheus.NewCounterVec(prometheus.CounterOpts{Name: "uc_messages_total",
+		Help: "Sensor messages read, by asset and outcome (accepted, dead-letter, skipped)."}, []string{"asset", "outcome"})
+	m.deadLetters = prometheus.NewCounterVec(prometheus.CounterOpts{Name: "uc_dead_letters_total",
+		Help: "Messages sent to uc.dlq.<reason>, by reason."}, []string{"reason"})
+	m.samples = prometheus.NewCounterVec(prometheus.CounterOpts{Name: "uc_samples_total",
+		Help: "Three-axis samples accepted, by asset."}, []string{"asset"})
+	m.windows = prometheus.NewCounterVec(prometheus.CounterOpts{Name: "uc_windows_total",
+		Help: "Windows closed, by asset and why (complete, grace, idle)."}, []string{"asset", "closed"})
+	m.estimates = prometheus.NewCounterVec(prometheus.CounterOpts{Name: "uc_estimates_total",
+		Help: "Estimates published, by asset and result (published, duplicate, failed)."}, []string{"asset", "result"})
+	m.alarms = prometheus.NewCounterVec(prometheus.CounterOpts{Name: "uc_alarms_total",
+		Help: "Alarms raised, by asset and kind."}, []string{"asset", "kind"})
+	m.stage = prometheus.NewHistogramVec(prometheus.HistogramOpts{Name: "uc_stage_seconds",
+		Help:    "Time spent per stage (decode, assemble, reduce, solve, publish, checkpoint).",
+		Buckets: prometheus.ExponentialBuckets(1e-6, 4, 12)}, []string{"stage"})
+	m.latency = prometheus.NewHistogramVec(prometheus.HistogramOpts{Name: "uc_estimate_latency_seconds",
+		Help:    "From the arrival of the message that closed a window to the broker's acknowledgement of its estimate.",
+		Buckets: prometheus.ExponentialBuckets(1e-4, 2, 16)}, []string{"asset"})
+	m.pending = prometheus.NewGaugeVec(prometheus.GaugeOpts{Name: "uc_pending_messages",
+		Help: "Sensor messages stored but not yet read, by asset (consumer lag)."}, []string{"asset"})
+	m.dataLag = prometheus.NewGaugeVec(prometheus.GaugeOpts{Name: "uc_data_lag_seconds",
+		Help: "Wall-clock time minus the end of the last published window, by asset (live data with Unix times)."}, []string{"asset"})
+	m.leases = prometheus.NewGauge(prometheus.GaugeOpts{Name: "uc_assets_held", Help: "Assets this worker holds."})
+	m.takeovers = prometheus.NewCounter(prometheus.CounterOpts{Name: "uc_asset_acquisitions_total",
+		Help: "Times this worker acquired an asset's lease."})
+	m.reg.MustRegister(m.messages, m.deadLetters, m.samples, m.windows, m.estimates, m.alarms,
+		m.stage, m.latency, m.pending, m.dataLag, m.leases, m.takeovers,
+		collectors.NewGoCollector(), collectors.NewProcessCollector(collectors.ProcessCollectorOpts{}))
+	return m
+}

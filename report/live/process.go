@@ -1,0 +1,241 @@
+package live
+
+import (
+	"fmt"
+	"math"
+	"sort"
+
+	"undercurrent/calibrate"
+)
+
+// processor turns closed windows of one asset into estimates and alarms.
+type processor struct {
+	asset  *AssetConfig
+	cals   []*calibrate.Calibration // per sensor, nil when uncalibrated
+	rot    [][3][3]float64          // per sensor, sensor frame -> ENU
+	est    Estimator                // nil while commissioning
+	names  []string                 // conductor names in estimator order
+	prev   map[string]float64       // previous window's currents (step alarm)
+	worker string
+}
+
+func newProcessor(a *AssetConfig, worker string) (*processor, error) {
+	p := &processor{asset: a, worker: worker, prev: map[string]float64{}}
+	for _, s := range a.Sensors {
+		var cal *calibrate.Calibration
+		if s.Calibration != "" {
+			c, err := calibrate.Load(s.Calibration)
+			if err != nil {
+				return nil, fmt.Errorf("live: asset %s sensor %s: %w", a.Name, s.Name, err)
+			}
+			cal = c
+		}
+		p.cals = append(p.cals, cal)
+		p.rot = append(p.rot, orientation(s.Orientation))
+	}
+	return p, nil
+}
+
+// orientation returns R with b_ENU = R b_sensor, where
+//
+//	R = Rz(yaw) Ry(pitch) Rx(roll)
+//
+// are right-handed rotations about the up, north and east axes, angles in
+// degrees.
+func orientation(ypr [3]float64) [3][3]float64 {
+	d := math.Pi / 180
+	sy, cy := math.Sincos(ypr[0] * d)
+	sp, cp := math.Sincos(ypr[1] * d)
+	sr, cr := math.Sincos(ypr[2] * d)
+	return [3][3]float64{
+		{cy * cp, cy*sp*sr - sy*cr, cy*sp*cr + sy*sr},
+		{sy * cp, sy*sp*sr + cy*cr, sy*sp*cr - cy*sr},
+		{-sp, cp * sr, cp * cr},
+	}
+}
+
+// reduced is a window reduced to one reading per usable sensor.
+type reduced struct {
+	in      SolveInput
+	used    []int
+	samples int
+	missing map[string]string
+	alarms  []Alarm
+}
+
+// minSamples is the fewest samples a sensor needs in a window to be used:
+// a three-parameter sine fit needs more than three (IEEE Std 1057).
+const minSamples = 4
+
+// reduce calibrates, rotates and averages (DC) or demodulates (AC) each
+// sensor's samples, and raises silent and stuck alarms.
+func (p *processor) reduce(w *Window) *reduced {
+	a := p.asset
+	r := &reduced{missing: map[string]string{}}
+	var ns []int
+	for i, s := range a.Sensors {
+		sr := w.Sensors[i]
+		n := sr.len()
+		if n == 0 {
+			r.missing[s.Name] = "silent"
+			r.alarms = append(r.alarms, p.alarm(w, AlarmSilent, s.Name, 0, 0, fmt.Sprintf("sensor %s sent no samples in the window", s.Name)))
+			continue
+		}
+		if n < minSamples {
+			r.missing[s.Name] = fmt.Sprintf("%d samples", n)
+			continue
+		}
+		if axis := stuckAxis(&sr); axis != "" {
+			r.missing[s.Name] = "stuck"
+			r.alarms = append(r.alarms, p.alarm(w, AlarmStuck, s.Name, sr.Bx[0], 0,
+				fmt.Sprintf("sensor %s repeated one value on axis %s for %d samples", s.Name, axis, n)))
+			continue
+		}
+		bx := append([]float64(nil), sr.Bx...)
+		by := append([]float64(nil), sr.By...)
+		bz := append([]float64(nil), sr.Bz...)
+		if c := p.cals[i]; c != nil {
+			c.ApplyColumns(bx, by, bz)
+		}
+		R := p.rot[i]
+		if a.Mode == "ac" {
+			var ph [3]complex128
+			ok := true
+			for k, col := range [][]float64{bx, by, bz} {
+				f, err := calibrate.FitSine(sr.T, col, a.Frequency, nil)
+				if err != nil {
+					r.missing[s.Name] = err.Error()
+					ok = false
+					break
+				}
+				ph[k] = f.Phasor()
+			}
+			if !ok {
+				continue
+			}
+			var e [3]complex128
+			for row := range 3 {
+				for k := range 3 {
+					e[row] += complex(R[row][k], 0) * ph[k]
+				}
+			}
+			r.in.Phasors = append(r.in.Phasors, e)
+		} else {
+			m := [3]float64{mean(bx), mean(by), mean(bz)}
+			var e [3]float64
+			for row := range 3 {
+				e[row] = R[row][0]*m[0] + R[row][1]*m[1] + R[row][2]*m[2]
+			}
+			r.in.Fields = append(r.in.Fields, e)
+		}
+		r.in.Points = append(r.in.Points, s.Position)
+		r.used = append(r.used, i)
+		r.samples += n
+		ns = append(ns, n)
+	}
+	if a.Noise > 0 && len(ns) > 0 {
+		// Noise of a mean of n samples (DC) or of each quadrature of a
+		// sine fit over n samples (AC): sigma / sqrt(n).
+		sort.Ints(ns)
+		r.in.Sigma = a.Noise / math.Sqrt(float64(ns[len(ns)/2]))
+	}
+	return r
+}
+
+func stuckAxis(s *series) string {
+	for k, col := range [][]float64{s.Bx, s.By, s.Bz} {
+		same := true
+		for _, v := range col[1:] {
+			if v != col[0] {
+				same = false
+				break
+			}
+		}
+		if same {
+			return [3]string{"x", "y", "z"}[k]
+		}
+	}
+	return ""
+}
+
+func mean(v []float64) float64 {
+	var s float64
+	for _, x := range v {
+		s += x
+	}
+	return s / float64(len(v))
+}
+
+// solve runs the estimator on a reduced window and builds the estimate and
+// its alarms. A failed solve still gives an estimate (quality "failed")
+// so that every window has exactly one.
+func (p *processor) solve(w *Window, r *reduced) (*Estimate, []Alarm) {
+	a := p.asset
+	e := &Estimate{Asset: a.Name, Window: w.Index, Start: w.Start, End: w.End, Mode: a.Mode,
+		Sensors: len(r.used), Samples: r.samples, Closed: w.Reason, Worker: p.worker, Conductors: []ConductorEstimate{}}
+	if len(r.missing) > 0 {
+		e.Missing = r.missing
+	}
+	if a.Mode == "ac" {
+		e.Frequency = a.Frequency
+	}
+	alarms := r.alarms
+	out, err := p.est.Solve(&r.in)
+	if err == nil && len(out.Current) != len(p.names) {
+		err = fmt.Errorf("estimator returned %d currents for %d conductors", len(out.Current), len(p.names))
+	}
+	if err != nil {
+		e.Quality = "failed"
+		alarms = append(alarms, p.alarm(w, AlarmDegraded, "", 0, 0, fmt.Sprintf("solve failed with %d sensors: %v", len(r.used), err)))
+		return e, alarms
+	}
+	e.RMS, e.Chi2, e.DOF, e.Background = out.RMS, out.Chi2, out.DOF, out.Background
+	e.Quality = "good"
+	if out.DOF > 0 && out.Chi2/float64(out.DOF) > a.Alarms.MaxChi2 {
+		e.Quality = "degraded"
+		alarms = append(alarms, p.alarm(w, AlarmDegraded, "", out.Chi2/float64(out.DOF), a.Alarms.MaxChi2,
+			fmt.Sprintf("reduced chi-square %.3g above %.3g", out.Chi2/float64(out.DOF), a.Alarms.MaxChi2)))
+	}
+	byName := map[string]complex128{}
+	for i, name := range p.names {
+		c := ConductorEstimate{Name: name, Current: out.Current[i], CurrentSigma: out.CurrentSigma[i]}
+		ph := 0.0
+		if out.Phase != nil {
+			v, s := out.Phase[i], out.PhaseSigma[i]
+			c.Phase, c.PhaseSigma = &v, &s
+			ph = v
+		}
+		e.Conductors = append(e.Conductors, c)
+		byName[name] = complex(c.Current*math.Cos(ph*math.Pi/180), c.Current*math.Sin(ph*math.Pi/180))
+		if t := a.Alarms.MaxCurrent; t > 0 && math.Abs(c.Current) > t {
+			alarms = append(alarms, p.alarm(w, AlarmOverCurrent, name, c.Current, t,
+				fmt.Sprintf("conductor %s carries %.4g A, above %.4g A", name, c.Current, t)))
+		}
+		if prev, ok := p.prev[name]; ok && a.Alarms.Step > 0 && math.Abs(c.Current-prev) > a.Alarms.Step {
+			alarms = append(alarms, p.alarm(w, AlarmStep, name, c.Current-prev, a.Alarms.Step,
+				fmt.Sprintf("conductor %s changed by %.4g A since the previous window", name, c.Current-prev)))
+		}
+		p.prev[name] = c.Current
+	}
+	if len(a.Alarms.Balance) > 1 && a.Alarms.MaxImbalance > 0 {
+		var sum complex128
+		all := true
+		for _, n := range a.Alarms.Balance {
+			v, ok := byName[n]
+			all = all && ok
+			sum += v
+		}
+		if imb := cmplxAbs(sum); all && imb > a.Alarms.MaxImbalance {
+			alarms = append(alarms, p.alarm(w, AlarmImbalance, "", imb, a.Alarms.MaxImbalance,
+				fmt.Sprintf("go and return currents differ by %.4g A (leakage?)", imb)))
+		}
+	}
+	return e, alarms
+}
+
+func cmplxAbs(c complex128) float64 { return math.Hypot(real(c), imag(c)) }
+
+func (p *processor) alarm(w *Window, kind, subject string, value, threshold float64, msg string) Alarm {
+	return Alarm{Asset: p.asset.Name, Kind: kind, Window: w.Index, Start: w.Start, End: w.End,
+		Subject: subject, Value: value, Threshold: threshold, Message: msg}
+}

@@ -1,0 +1,320 @@
+package live
+
+import (
+	"context"
+	"crypto/rand"
+	"encoding/hex"
+	"errors"
+	"fmt"
+	"hash/fnv"
+	"log/slog"
+	"net"
+	"net/http"
+	"os"
+	"sort"
+	"sync"
+	"time"
+
+	"github.com/nats-io/nats.go"
+	"github.com/nats-io/nats.go/jetstream"
+
+	"undercurrent/ingest/broker"
+)
+
+// Config wires a Service. Site and Conn are required.
+type Config struct {
+	Site *Site
+	// Conn is a connection to the broker (embedded or a cluster).
+	Conn *nats.Conn
+	// Worker names this worker in leases and estimates; "" means
+	// host-pid-random.
+	Worker string
+	// NewEstimator builds the fixed-geometry solver; nil means
+	// NewInverseEstimator.
+	NewEstimator NewEstimatorFunc
+	// Commissioner fits geometry for model "commission"; nil means
+	// InverseCommissioner.
+	Commissioner Commissioner
+	// HTTP overrides the site's listen address ("-" disables HTTP).
+	HTTP string
+	// Logger receives structured logs; nil discards them.
+	Logger *slog.Logger
+	// Memory keeps streams in memory (tests).
+	Memory bool
+	// OnEstimate, when set, is called after each estimate is acknowledged
+	// with the time since its window closed (load tests).
+	OnEstimate func(e *Estimate, latency time.Duration)
+}
+
+// Service is the continuous pipeline: it shares the site's assets with
+// other workers through leases in the broker, processes the ones it holds
+// and serves the HTTP API.
+type Service struct {
+	site         *Site
+	nc           *nats.Conn
+	id           string
+	log          *slog.Logger
+	met          *metrics
+	stores       *broker.Stores
+	newEstimator NewEstimatorFunc
+	commissioner Commissioner
+	onEstimate   func(*Estimate, time.Duration)
+	httpAddr     string
+	memory       bool
+
+	mu       sync.Mutex
+	held     map[string]*holding
+	ready    chan struct{}
+	httpLn   net.Listener
+	readyErr error
+}
+
+type holding struct {
+	rev    uint64
+	cancel context.CancelFunc
+	done   chan error
+}
+
+// New checks the configuration; Run does the work.
+func New(cfg Config) (*Service, error) {
+	if cfg.Site == nil || cfg.Conn == nil {
+		return nil, errors.New("live: New: Site and Conn are required")
+	}
+	s := &Service{site: cfg.Site, nc: cfg.Conn, id: cfg.Worker, log: cfg.Logger, met: newMetrics(),
+		newEstimator: cfg.NewEstimator, commissioner: cfg.Commissioner, onEstimate: cfg.OnEstimate,
+		httpAddr: cfg.HTTP, memory: cfg.Memory, held: map[string]*holding{}, ready: make(chan struct{})}
+	if s.id == "" {
+		host, _ := os.Hostname()
+		var b [3]byte
+		rand.Read(b[:])
+		s.id = fmt.Sprintf("%s-%d-%s", host, os.Getpid(), hex.EncodeToString(b[:]))
+	}
+	if err := broker.ValidToken(s.id); err != nil {
+		// Host names may hold dots; keep the id a valid key.
+		s.id = sanitize(s.id)
+	}
+	if s.log == nil {
+		s.log = slog.New(slog.NewTextHandler(discard{}, nil))
+	}
+	s.log = s.log.With("worker", s.id)
+	if s.newEstimator == nil {
+		s.newEstimator = defaultEstimator
+	}
+	if s.commissioner == nil {
+		s.commissioner = defaultCommissioner
+	}
+	if s.newEstimator == nil {
+		return nil, errors.New("live: New: no estimator configured")
+	}
+	if s.httpAddr == "" {
+		s.httpAddr = s.site.Service.HTTP
+	}
+	return s, nil
+}
+
+type discard struct{}
+
+func (discard) Write(p []byte) (int, error) { return len(p), nil }
+
+func sanitize(id string) string {
+	b := []byte(id)
+	for i, c := range b {
+		if !(c == '-' || c == '_' || (c >= '0' && c <= '9') || (c >= 'a' && c <= 'z') || (c >= 'A' && c <= 'Z')) {
+			b[i] = '_'
+		}
+	}
+	if len(b) > 64 {
+		b = b[:64]
+	}
+	return string(b)
+}
+
+// ID returns the worker id.
+func (s *Service) ID() string { return s.id }
+
+// Ready is closed once the streams exist and the HTTP API listens.
+func (s *Service) Ready() <-chan struct{} { return s.ready }
+
+// HTTPAddr returns the API's address once Ready (empty when disabled).
+func (s *Service) HTTPAddr() string {
+	if s.httpLn == nil {
+		return ""
+	}
+	return s.httpLn.Addr().String()
+}
+
+// Run creates the streams, serves the API and processes assets until ctx
+// ends; then it stops taking data, publishes the windows already
+// complete, writes checkpoints, hands its leases back and returns.
+func (s *Service) Run(ctx context.Context) error {
+	js, err := jetstream.New(s.nc)
+	if err != nil {
+		return fmt.Errorf("live: %w", err)
+	}
+	sctx, cancel := context.WithTimeout(ctx, 30*time.Second)
+	s.stores, err = broker.Setup(sctx, js, broker.StreamSettings{
+		Replicas: s.site.Broker.Replicas, DataMaxAge: s.site.Broker.DataRetention.Duration,
+		LeaseTTL: s.site.Service.LeaseTTL.Duration, Memory: s.memory})
+	cancel()
+	if err != nil {
+		return fmt.Errorf("live: %w", err)
+	}
+	var srv *http.Server
+	if s.httpAddr != "-" {
+		ln, err := net.Listen("tcp", s.httpAddr)
+		if err != nil {
+			return fmt.Errorf("live: http: %w", err)
+		}
+		s.httpLn = ln
+		srv = &http.Server{Handler: s.Handler(), ReadHeaderTimeout: 10 * time.Second}
+		go srv.Serve(ln)
+		s.log.Info("http api listening", "addr", ln.Addr().String())
+	}
+	close(s.ready)
+	err = s.leaseLoop(ctx)
+	if srv != nil {
+		sd, cancel := context.WithTimeout(context.Background(), 5*time.Second)
+		srv.Shutdown(sd)
+		cancel()
+	}
+	return err
+}
+
+// leaseLoop heartbeats, acquires and renews asset leases, and drains on exit.
+func (s *Service) leaseLoop(ctx context.Context) error {
+	ttl := s.site.Service.LeaseTTL.Duration
+	tick := time.NewTicker(ttl / 4)
+	defer tick.Stop()
+	order := s.assetOrder()
+	for {
+		s.leaseRound(ctx, order)
+		select {
+		case <-ctx.Done():
+			return s.releaseAll()
+		case <-tick.C:
+		}
+	}
+}
+
+// assetOrder rotates the asset list by a hash of the worker id so that
+// workers starting together reach for different assets first.
+func (s *Service) assetOrder() []string {
+	names := make([]string, len(s.site.Assets))
+	for i, a := range s.site.Assets {
+		names[i] = a.Name
+	}
+	sort.Strings(names)
+	h := fnv.New32a()
+	h.Write([]byte(s.id))
+	k := int(h.Sum32() % uint32(len(names)))
+	return append(names[k:], names[:k]...)
+}
+
+func (s *Service) leaseRound(ctx context.Context, order []string) {
+	st := s.stores
+	rctx, cancel := context.WithTimeout(ctx, s.site.Service.LeaseTTL.Duration/2)
+	defer cancel()
+	if _, err := st.Workers.Put(rctx, s.id, []byte(time.Now().UTC().Format(time.RFC3339Nano))); err != nil {
+		s.log.Warn("heartbeat failed", "err", err)
+	}
+	workers := 1
+	if keys, err := st.Workers.Keys(rctx); err == nil && len(keys) > 0 {
+		workers = len(keys)
+	}
+	limit := (len(order) + workers - 1) / workers
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	// Renew, and notice assets whose processing ended.
+	for name, h := range s.held {
+		select {
+		case err := <-h.done:
+			if err != nil {
+				s.log.Error("asset processing stopped", "asset", name, "err", err)
+			}
+			st.Lease.Delete(rctx, name, jetstream.LastRevision(h.rev))
+			delete(s.held, name)
+			continue
+		default:
+		}
+		rev, err := st.Lease.Update(rctx, name, []byte(s.id), h.rev)
+		if err != nil {
+			s.log.Warn("lease lost", "asset", name, "err", err)
+			h.cancel()
+			<-h.done
+			delete(s.held, name)
+			continue
+		}
+		h.rev = rev
+	}
+	if ctx.Err() != nil {
+		return
+	}
+	for _, name := range order {
+		if len(s.held) >= limit {
+			break
+		}
+		if _, ok := s.held[name]; ok {
+			continue
+		}
+		rev, err := st.Lease.Create(rctx, name, []byte(s.id))
+		if err != nil {
+			continue // held by another worker (or the broker is away)
+		}
+		a := s.site.Asset(name)
+		aw, err := s.newAssetWorker(a)
+		if err != nil {
+			s.log.Error("asset cannot start", "asset", name, "err", err)
+			st.Lease.Delete(rctx, name, jetstream.LastRevision(rev))
+			continue
+		}
+		actx, acancel := context.WithCancel(context.Background())
+		h := &holding{rev: rev, cancel: acancel, done: make(chan error, 1)}
+		s.held[name] = h
+		s.met.takeovers.Inc()
+		go func() { h.done <- aw.run(actx) }()
+	}
+	s.met.leases.Set(float64(len(s.held)))
+}
+
+// releaseAll drains every held asset and hands its lease back.
+func (s *Service) releaseAll() error {
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	for _, h := range s.held {
+		h.cancel()
+	}
+	var errs []error
+	ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
+	defer cancel()
+	for name, h := range s.held {
+		if err := <-h.done; err != nil {
+			errs = append(errs, err)
+		}
+		s.stores.Lease.Delete(ctx, name, jetstream.LastRevision(h.rev))
+		delete(s.held, name)
+	}
+	s.stores.Workers.Delete(ctx, s.id)
+	s.met.leases.Set(0)
+	s.log.Info("drained")
+	return errors.Join(errs...)
+}
+
+// publish stores msg through JetStream with a message id, retrying while
+// the broker is unreachable (up to about a minute).
+func (s *Service) publish(msg *nats.Msg, id string) (*jetstream.PubAck, error) {
+	var last error
+	for attempt := 0; attempt < 30; attempt++ {
+		if s.nc.IsClosed() {
+			return nil, fmt.Errorf("live: publish %s: connection closed", msg.Subject)
+		}
+		ctx, cancel := context.WithTimeout(context.Background(), 2*time.Second)
+		ack, err := s.stores.JS.PublishMsg(ctx, msg, jetstream.WithMsgID(id))
+		cancel()
+		if err == nil {
+			return ack, nil
+		}
+		last = err
+		time.Sleep(time.Duration(attempt+1) * 50 * time.Millisecond)
+	}
+	return nil, fmt.Errorf("live: publish %s: %w", msg.Subject, last)
+}

@@ -1,0 +1,365 @@
+package live
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"net"
+	"os"
+	"path/filepath"
+	"strings"
+	"time"
+
+	"github.com/BurntSushi/toml"
+
+	"undercurrent/ingest/broker"
+)
+
+// Site is a site file: the service settings, the broker and the assets
+// with their sensors, conductors and alarm thresholds. See
+// testdata/site/harrow-fen.toml for a commented example.
+type Site struct {
+	Name    string        `toml:"name"`
+	Service ServiceConfig `toml:"service"`
+	Broker  BrokerConfig  `toml:"broker"`
+	Assets  []AssetConfig `toml:"asset"`
+
+	// Path is the file the site was loaded from; relative calibration
+	// paths are taken from its directory.
+	Path string `toml:"-"`
+}
+
+// ServiceConfig is the [service] table.
+type ServiceConfig struct {
+	// HTTP is the API listen address; "" means 127.0.0.1:8470.
+	HTTP string `toml:"http"`
+	// Token guards the state-changing endpoints (and every endpoint when
+	// HTTP is not loopback); TokenEnv names an environment variable holding
+	// it instead. Without a token, state-changing endpoints are refused.
+	Token    string `toml:"token"`
+	TokenEnv string `toml:"token_env"`
+	// LeaseTTL is how long a dead worker keeps its assets before another
+	// takes over; 0 means 5 s.
+	LeaseTTL Duration `toml:"lease_ttl"`
+	// Grace is how far (in data time) the furthest sensor may run ahead of
+	// a silent one before a window is closed without it; 0 means two
+	// windows.
+	Grace Duration `toml:"grace"`
+	// Idle closes open windows after this much wall-clock time without any
+	// data for the asset (end of a replay, all sensors silent); 0 means 5 s.
+	Idle Duration `toml:"idle"`
+	// MaxMessageBytes is the largest sensor message accepted; larger ones
+	// go to uc.dlq.oversized. 0 means 1 MiB.
+	MaxMessageBytes int `toml:"max_message_bytes"`
+}
+
+// BrokerConfig is the [broker] table.
+type BrokerConfig struct {
+	// Listen is the embedded NATS server's address; "" means 127.0.0.1:4222.
+	Listen string `toml:"listen"`
+	// MQTT is the embedded MQTT listener's address; "" means
+	// 127.0.0.1:1883, "off" disables it.
+	MQTT string `toml:"mqtt"`
+	// Replicas of streams and buckets (3 on a three-node cluster); 0 means 1.
+	Replicas int `toml:"replicas"`
+	// DataRetention bounds how long raw sensor batches are kept; 0 means 24 h.
+	DataRetention Duration `toml:"data_retention"`
+	// User and Password (or Token) are the credentials the service itself
+	// uses. Users lists the accounts of the embedded server; when it is
+	// non-empty, unauthenticated clients are refused.
+	User     string       `toml:"user"`
+	Password string       `toml:"password"`
+	Token    string       `toml:"token"`
+	Users    []BrokerUser `toml:"users"`
+}
+
+// BrokerUser is one account of the embedded broker.
+type BrokerUser struct {
+	Name      string   `toml:"name"`
+	Password  string   `toml:"password"`
+	Publish   []string `toml:"publish"`
+	Subscribe []string `toml:"subscribe"`
+}
+
+// AssetConfig is one [[asset]].
+type AssetConfig struct {
+	Name        string `toml:"name"`
+	Description string `toml:"description"`
+	// Mode is "dc" or "ac".
+	Mode string `toml:"mode"`
+	// Frequency is the AC frequency, Hz (mode "ac").
+	Frequency float64 `toml:"frequency"`
+	// Window is the estimate interval; 0 means 1 s.
+	Window Duration `toml:"window"`
+	// Model is "fixed" (conductor geometry given) or "commission" (fit the
+	// geometry from the first Commission of data, store it, then hold it).
+	Model      string   `toml:"model"`
+	Commission Duration `toml:"commission"`
+	// Noise is the sensor noise per sample, nT rms; 0 estimates it from
+	// the fit residuals.
+	Noise      float64           `toml:"noise"`
+	Sensors    []SensorConfig    `toml:"sensor"`
+	Conductors []ConductorConfig `toml:"conductor"`
+	Alarms     AlarmConfig       `toml:"alarms"`
+}
+
+// SensorConfig is one [[asset.sensor]].
+type SensorConfig struct {
+	Name string `toml:"name"`
+	// Position is east, north, up in metres in the site's local frame.
+	Position [3]float64 `toml:"position"`
+	// Orientation is yaw, pitch, roll in degrees taking the sensor frame to
+	// east-north-up (zero: the sensor's x, y, z already point east, north, up).
+	Orientation [3]float64 `toml:"orientation"`
+	// Calibration is a calibration file written by "undercurrent calibrate".
+	Calibration string `toml:"calibration"`
+}
+
+// ConductorConfig is one [[asset.conductor]].
+type ConductorConfig struct {
+	Name string `toml:"name"`
+	// Kind is "line" (infinite, through Point along Direction) or
+	// "segment" (From to To); positive current flows along the direction.
+	Kind      string     `toml:"kind"`
+	Point     [3]float64 `toml:"point"`
+	Direction [3]float64 `toml:"direction"`
+	From      [3]float64 `toml:"from"`
+	To        [3]float64 `toml:"to"`
+}
+
+// AlarmConfig is the [asset.alarms] table; a zero threshold disables its alarm.
+type AlarmConfig struct {
+	// MaxCurrent: |I| of any conductor above this (A, RMS for AC).
+	MaxCurrent float64 `toml:"max_current"`
+	// Balance names conductors whose currents should sum to zero (a go and
+	// its return); MaxImbalance is the largest |sum| tolerated, A.
+	Balance      []string `toml:"balance"`
+	MaxImbalance float64  `toml:"max_imbalance"`
+	// Step: |change| of a conductor's current between consecutive windows, A.
+	Step float64 `toml:"step"`
+	// MaxChi2 is the reduced chi-square above which the fit is degraded;
+	// 0 means 25.
+	MaxChi2 float64 `toml:"max_chi2"`
+}
+
+// Duration is a time.Duration written as "1s", "500ms", "2m" in TOML.
+type Duration struct{ time.Duration }
+
+// UnmarshalText parses a Go duration string.
+func (d *Duration) UnmarshalText(b []byte) error {
+	v, err := time.ParseDuration(string(b))
+	if err != nil {
+		return fmt.Errorf("%q is not a duration such as \"1s\" or \"250ms\"", b)
+	}
+	d.Duration = v
+	return nil
+}
+
+// MarshalText writes the duration as Go does.
+func (d Duration) MarshalText() ([]byte, error) { return []byte(d.String()), nil }
+
+// LoadSite reads and validates a site file.
+func LoadSite(path string) (*Site, error) {
+	data, err := os.ReadFile(path)
+	if err != nil {
+		return nil, fmt.Errorf("live: %w", err)
+	}
+	return ParseSite(path, data)
+}
+
+// ParseSite parses and validates site-file text; name is used in messages
+// and for relative paths.
+func ParseSite(name string, data []byte) (*Site, error) {
+	var s Site
+	md, err := toml.Decode(string(data), &s)
+	if err != nil {
+		var pe toml.ParseError
+		if errors.As(err, &pe) {
+			return nil, fmt.Errorf("live: %s:%d:%d: %s", name, pe.Position.Line, pe.Position.Col, pe.Message)
+		}
+		return nil, fmt.Errorf("live: %s: %w", name, err)
+	}
+	if und := md.Undecoded(); len(und) > 0 {
+		keys := make([]string, len(und))
+		for i, k := range und {
+			keys[i] = k.String()
+		}
+		return nil, fmt.Errorf("live: %s: unknown key %s", name, strings.Join(keys, ", "))
+	}
+	s.Path = name
+	if err := s.validate(); err != nil {
+		return nil, fmt.Errorf("live: %s: %w", name, err)
+	}
+	return &s, nil
+}
+
+func (s *Site) validate() error {
+	if s.Service.HTTP == "" {
+		s.Service.HTTP = "127.0.0.1:8470"
+	}
+	if s.Service.LeaseTTL.Duration == 0 {
+		s.Service.LeaseTTL.Duration = 5 * time.Second
+	}
+	if s.Service.Idle.Duration == 0 {
+		s.Service.Idle.Duration = 5 * time.Second
+	}
+	if s.Service.MaxMessageBytes == 0 {
+		s.Service.MaxMessageBytes = 1 << 20
+	}
+	if s.Service.TokenEnv != "" && s.Service.Token == "" {
+		s.Service.Token = os.Getenv(s.Service.TokenEnv)
+	}
+	if s.Service.LeaseTTL.Duration < 500*time.Millisecond {
+		return fmt.Errorf("service.lease_ttl %v: want at least 500ms", s.Service.LeaseTTL.Duration)
+	}
+	if _, _, err := net.SplitHostPort(s.Service.HTTP); err != nil {
+		return fmt.Errorf("service.http %q: want host:port", s.Service.HTTP)
+	}
+	if s.Broker.Listen == "" {
+		s.Broker.Listen = "127.0.0.1:4222"
+	}
+	if s.Broker.MQTT == "" {
+		s.Broker.MQTT = "127.0.0.1:1883"
+	}
+	if s.Broker.Replicas == 0 {
+		s.Broker.Replicas = 1
+	}
+	if s.Broker.Replicas < 1 || s.Broker.Replicas > 5 {
+		return fmt.Errorf("broker.replicas %d: want 1 to 5", s.Broker.Replicas)
+	}
+	if s.Broker.Token != "" && len(s.Broker.Users) > 0 {
+		return fmt.Errorf("broker: give users or a token, not both")
+	}
+	for i, u := range s.Broker.Users {
+		if u.Name == "" || u.Password == "" {
+			return fmt.Errorf("broker.users[%d]: name and password are required", i+1)
+		}
+	}
+	if len(s.Assets) == 0 {
+		return fmt.Errorf("no [[asset]] tables")
+	}
+	seen := map[string]bool{}
+	for i := range s.Assets {
+		a := &s.Assets[i]
+		if err := broker.ValidToken(a.Name); err != nil {
+			return fmt.Errorf("asset %d: name: %w", i+1, err)
+		}
+		if seen[a.Name] {
+			return fmt.Errorf("asset %q listed twice", a.Name)
+		}
+		seen[a.Name] = true
+		if err := a.validate(filepath.Dir(s.Path)); err != nil {
+			return fmt.Errorf("asset %q: %w", a.Name, err)
+		}
+	}
+	return nil
+}
+
+func (a *AssetConfig) validate(dir string) error {
+	switch a.Mode {
+	case "", "dc":
+		a.Mode = "dc"
+	case "ac":
+		if !(a.Frequency > 0) || a.Frequency > 1e5 {
+			return fmt.Errorf("frequency %v: mode \"ac\" needs a frequency in Hz", a.Frequency)
+		}
+	default:
+		return fmt.Errorf("mode %q: want \"dc\" or \"ac\"", a.Mode)
+	}
+	if a.Window.Duration == 0 {
+		a.Window.Duration = time.Second
+	}
+	if a.Window.Duration < time.Millisecond {
+		return fmt.Errorf("window %v: want at least 1ms", a.Window.Duration)
+	}
+	if a.Mode == "ac" && a.Window.Seconds()*a.Frequency < 2 {
+		return fmt.Errorf("window %v holds fewer than two cycles at %v Hz", a.Window.Duration, a.Frequency)
+	}
+	switch a.Model {
+	case "", "fixed":
+		a.Model = "fixed"
+		if len(a.Conductors) == 0 {
+			return fmt.Errorf("model \"fixed\" needs at least one [[asset.conductor]]")
+		}
+	case "commission":
+		if a.Commission.Duration == 0 {
+			a.Commission.Duration = time.Minute
+		}
+		if a.Commission.Duration < a.Window.Duration {
+			return fmt.Errorf("commission %v is shorter than one window", a.Commission.Duration)
+		}
+	default:
+		return fmt.Errorf("model %q: want \"fixed\" or \"commission\"", a.Model)
+	}
+	if a.Noise < 0 || math.IsNaN(a.Noise) {
+		return fmt.Errorf("noise %v: want a non-negative value in nT", a.Noise)
+	}
+	if len(a.Sensors) == 0 {
+		return fmt.Errorf("no [[asset.sensor]] tables")
+	}
+	names := map[string]bool{}
+	for i := range a.Sensors {
+		s := &a.Sensors[i]
+		if err := broker.ValidToken(s.Name); err != nil {
+			return fmt.Errorf("sensor %d: %w", i+1, err)
+		}
+		if names[s.Name] {
+			return fmt.Errorf("sensor %q listed twice", s.Name)
+		}
+		names[s.Name] = true
+		if s.Calibration != "" && !filepath.IsAbs(s.Calibration) {
+			s.Calibration = filepath.Join(dir, s.Calibration)
+		}
+	}
+	cnames := map[string]bool{}
+	for i := range a.Conductors {
+		c := &a.Conductors[i]
+		if c.Name == "" {
+			c.Name = fmt.Sprintf("c%d", i+1)
+		}
+		if cnames[c.Name] {
+			return fmt.Errorf("conductor %q listed twice", c.Name)
+		}
+		cnames[c.Name] = true
+		if a.Model == "commission" {
+			continue // geometry is fitted; the entry names the conductor
+		}
+		switch c.Kind {
+		case "", "line":
+			c.Kind = "line"
+			if c.Direction == ([3]float64{}) {
+				return fmt.Errorf("conductor %q: direction is zero", c.Name)
+			}
+		case "segment":
+			if c.From == c.To {
+				return fmt.Errorf("conductor %q: from and to are the same point", c.Name)
+			}
+		default:
+			return fmt.Errorf("conductor %q: kind %q: want \"line\" or \"segment\"", c.Name, c.Kind)
+		}
+	}
+	for _, n := range a.Alarms.Balance {
+		if !cnames[n] && a.Model == "fixed" {
+			return fmt.Errorf("alarms.balance names conductor %q, which is not listed", n)
+		}
+	}
+	if a.Alarms.MaxChi2 == 0 {
+		a.Alarms.MaxChi2 = 25
+	}
+	for _, v := range []float64{a.Alarms.MaxCurrent, a.Alarms.MaxImbalance, a.Alarms.Step, a.Alarms.MaxChi2} {
+		if v < 0 || math.IsNaN(v) {
+			return fmt.Errorf("alarms: thresholds must be non-negative (got %v)", v)
+		}
+	}
+	return nil
+}
+
+// Asset returns the asset called name, or nil.
+func (s *Site) Asset(name string) *AssetConfig {
+	for i := range s.Assets {
+		if s.Assets[i].Name == name {
+			return &s.Assets[i]
+		}
+	}
+	return nil
+}

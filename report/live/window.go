@@ -1,0 +1,202 @@
+package live
+
+import (
+	"math"
+	"sort"
+	"time"
+
+	"undercurrent/ingest/broker"
+)
+
+// series holds one sensor's samples within one window.
+type series struct {
+	T, Bx, By, Bz []float64
+}
+
+func (s *series) len() int { return len(s.T) }
+
+// Window is one closed window of an asset: per-sensor samples in
+// [Start, End), indexed like the asset's sensors.
+type Window struct {
+	Index      int64 // Start = Index * window length
+	Start, End float64
+	Sensors    []series
+	// Closed is the wall-clock time the window was closed (for latency).
+	Closed time.Time
+	// Reason says why it closed: "complete", "grace" (a sensor lagged) or
+	// "idle" (no data for a while).
+	Reason string
+	// minSeq is the oldest stream sequence that fed the window.
+	minSeq uint64
+}
+
+// openWindow is a window still collecting samples.
+type openWindow struct {
+	idx     int64
+	sensors []series
+	minSeq  uint64
+}
+
+// assembler builds windows per asset in time order across its sensors.
+//
+// A sample at time t belongs to window k = floor(t/L + eps) (eps absorbs
+// rounding of times on a boundary). Window k closes when every sensor's
+// next expected sample (last time + its sample interval) falls in a later
+// window, when the furthest sensor is Grace past the window's end, or when
+// no data has arrived for Idle of wall time.
+type assembler struct {
+	L, grace float64
+	n        int
+	water    []float64 // last sample time per sensor
+	dt       []float64 // sample interval per sensor (0 = unknown)
+	open     []*openWindow
+	done     float64 // end of the last closed window; earlier samples are late
+	lastSeq  uint64
+	arrival  time.Time
+}
+
+const boundaryEps = 1e-7
+
+func newAssembler(window, grace time.Duration, sensors int) *assembler {
+	a := &assembler{L: window.Seconds(), grace: grace.Seconds(), n: sensors, done: math.Inf(-1)}
+	if a.grace <= 0 {
+		a.grace = 2 * a.L
+	}
+	a.water = make([]float64, sensors)
+	a.dt = make([]float64, sensors)
+	for i := range a.water {
+		a.water[i] = math.Inf(-1)
+	}
+	return a
+}
+
+func (a *assembler) index(t float64) int64 { return int64(math.Floor(t/a.L + boundaryEps)) }
+
+// addResult says what happened to a batch.
+type addResult int
+
+const (
+	added      addResult = iota
+	outOfOrder           // first sample not after the sensor's last one
+	late                 // every sample falls in a closed window
+)
+
+// add files the samples of b (sensor index s, stream sequence seq).
+// Samples before the end of the last closed window are dropped; dropped
+// reports how many.
+func (a *assembler) add(s int, seq uint64, b *broker.Batch, now time.Time) (res addResult, dropped int) {
+	if seq > a.lastSeq {
+		a.lastSeq = seq
+	}
+	a.arrival = now
+	if b.Time[0] <= a.water[s] {
+		return outOfOrder, 0
+	}
+	n := b.Len()
+	if n > 1 {
+		a.dt[s] = (b.Time[n-1] - b.Time[0]) / float64(n-1)
+	} else if !math.IsInf(a.water[s], -1) && a.dt[s] == 0 {
+		a.dt[s] = b.Time[0] - a.water[s]
+	}
+	a.water[s] = b.Time[n-1]
+	i0 := 0
+	for i0 < n && b.Time[i0] < a.done-boundaryEps*a.L {
+		i0++
+	}
+	if i0 == n {
+		return late, n
+	}
+	var w *openWindow
+	for i := i0; i < n; i++ {
+		k := a.index(b.Time[i])
+		if w == nil || w.idx != k {
+			w = a.window(k, seq)
+		}
+		sr := &w.sensors[s]
+		sr.T = append(sr.T, b.Time[i])
+		sr.Bx = append(sr.Bx, b.Bx[i])
+		sr.By = append(sr.By, b.By[i])
+		sr.Bz = append(sr.Bz, b.Bz[i])
+	}
+	return added, i0
+}
+
+// window returns the open window k, creating it in order.
+func (a *assembler) window(k int64, seq uint64) *openWindow {
+	i := sort.Search(len(a.open), func(i int) bool { return a.open[i].idx >= k })
+	if i < len(a.open) && a.open[i].idx == k {
+		if seq < a.open[i].minSeq {
+			a.open[i].minSeq = seq
+		}
+		return a.open[i]
+	}
+	w := &openWindow{idx: k, sensors: make([]series, a.n), minSeq: seq}
+	a.open = append(a.open, nil)
+	copy(a.open[i+1:], a.open[i:])
+	a.open[i] = w
+	return w
+}
+
+// ready closes and returns the windows that can be closed, oldest first.
+// idle > 0 closes everything open once no data arrived for that long.
+func (a *assembler) ready(now time.Time, idle time.Duration) []*Window {
+	var out []*Window
+	maxWater := math.Inf(-1)
+	for _, w := range a.water {
+		maxWater = math.Max(maxWater, w)
+	}
+	idleNow := idle > 0 && !a.arrival.IsZero() && now.Sub(a.arrival) >= idle
+	for len(a.open) > 0 {
+		w := a.open[0]
+		end := float64(w.idx+1) * a.L
+		reason := ""
+		switch {
+		case a.complete(w.idx):
+			reason = "complete"
+		case maxWater >= end+a.grace:
+			reason = "grace"
+		case idleNow:
+			reason = "idle"
+		}
+		if reason == "" {
+			break
+		}
+		a.open = a.open[1:]
+		a.done = end
+		out = append(out, &Window{Index: w.idx, Start: float64(w.idx) * a.L, End: end, Sensors: w.sensors, Closed: now, Reason: reason, minSeq: w.minSeq})
+	}
+	return out
+}
+
+// complete reports whether no sensor can add to window k any more.
+func (a *assembler) complete(k int64) bool {
+	for s := range a.water {
+		if math.IsInf(a.water[s], -1) {
+			return false
+		}
+		next := a.water[s] + a.dt[s]
+		if a.dt[s] == 0 {
+			next = a.water[s]
+		}
+		if a.index(next) <= k {
+			return false
+		}
+	}
+	return true
+}
+
+// resumeSeq is the first stream sequence a successor must read again to
+// rebuild the open windows: the oldest message feeding one, or the next
+// message when nothing is open.
+func (a *assembler) resumeSeq() uint64 {
+	if len(a.open) == 0 {
+		return a.lastSeq + 1
+	}
+	m := a.open[0].minSeq
+	for _, w := range a.open[1:] {
+		if w.minSeq < m {
+			m = w.minSeq
+		}
+	}
+	return m
+}

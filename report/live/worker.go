@@ -1,0 +1,303 @@
+package live
+
+import (
+	"context"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"log/slog"
+	"strconv"
+	"time"
+
+	"github.com/nats-io/nats.go"
+	"github.com/nats-io/nats.go/jetstream"
+
+	"undercurrent/ingest/broker"
+)
+
+// checkpoint is an asset's processing state in uc_state, written after
+// each group of published windows. A successor resumes reading UC_DATA at
+// ResumeSeq and drops samples before Done.
+type checkpoint struct {
+	Done      float64            `json:"done"`       // end of the last published window, s
+	Window    int64              `json:"window"`     // its index
+	ResumeSeq uint64             `json:"resume_seq"` // first UC_DATA sequence to read again
+	LastSeq   uint64             `json:"last_seq"`   // last UC_DATA sequence examined
+	Prev      map[string]float64 `json:"prev"`       // last currents, for the step alarm
+	Worker    string             `json:"worker"`
+}
+
+func checkpointKey(asset string) string { return "checkpoint." + asset }
+func geometryKey(asset string) string   { return "geometry." + asset }
+
+// assetWorker processes one asset while this worker holds its lease.
+type assetWorker struct {
+	svc   *Service
+	asset *AssetConfig
+	log   *slog.Logger
+	sens  map[string]int
+	asm   *assembler
+	proc  *processor
+	ck    checkpoint
+	// commissioning: windows waiting for the geometry.
+	pending []*Window
+	pendDur float64
+}
+
+func (s *Service) newAssetWorker(a *AssetConfig) (*assetWorker, error) {
+	proc, err := newProcessor(a, s.id)
+	if err != nil {
+		return nil, err
+	}
+	w := &assetWorker{svc: s, asset: a, log: s.log.With("asset", a.Name), sens: map[string]int{}, proc: proc}
+	for i, sn := range a.Sensors {
+		w.sens[sn.Name] = i
+	}
+	w.asm = newAssembler(a.Window.Duration, s.site.Service.Grace.Duration, len(a.Sensors))
+	return w, nil
+}
+
+// run reads the asset's data from its checkpoint until ctx ends, then
+// drains: messages already fetched are processed, complete windows are
+// published and the checkpoint is written.
+func (w *assetWorker) run(ctx context.Context) error {
+	st := w.svc.stores
+	bg := context.Background()
+	if e, err := st.State.Get(bg, checkpointKey(w.asset.Name)); err == nil {
+		if err := json.Unmarshal(e.Value(), &w.ck); err != nil {
+			return fmt.Errorf("live: asset %s: checkpoint: %w", w.asset.Name, err)
+		}
+		w.asm.done = w.ck.Done
+		w.asm.lastSeq = w.ck.LastSeq
+		for k, v := range w.ck.Prev {
+			w.proc.prev[k] = v
+		}
+	} else if !errors.Is(err, jetstream.ErrKeyNotFound) {
+		return fmt.Errorf("live: asset %s: checkpoint: %w", w.asset.Name, err)
+	}
+	if err := w.loadGeometry(bg); err != nil {
+		return err
+	}
+	cfg := jetstream.OrderedConsumerConfig{FilterSubjects: []string{broker.DataFilter(w.asset.Name)}, DeliverPolicy: jetstream.DeliverAllPolicy}
+	if w.ck.ResumeSeq > 0 {
+		cfg.DeliverPolicy = jetstream.DeliverByStartSequencePolicy
+		cfg.OptStartSeq = w.ck.ResumeSeq
+	}
+	cons, err := st.JS.OrderedConsumer(bg, broker.StreamData, cfg)
+	if err != nil {
+		return fmt.Errorf("live: asset %s: consumer: %w", w.asset.Name, err)
+	}
+	it, err := cons.Messages(jetstream.PullMaxMessages(512))
+	if err != nil {
+		return fmt.Errorf("live: asset %s: consumer: %w", w.asset.Name, err)
+	}
+	w.log.Info("asset acquired", "resume_seq", w.ck.ResumeSeq, "done", w.ck.Done)
+	msgs := make(chan jetstream.Msg, 64)
+	go func() {
+		defer close(msgs)
+		for {
+			m, err := it.Next()
+			if err != nil {
+				return
+			}
+			msgs <- m
+		}
+	}()
+	tick := time.NewTicker(w.tickEvery())
+	defer tick.Stop()
+	done := ctx.Done()
+	for {
+		select {
+		case <-done:
+			done = nil
+			it.Drain()
+		case m, ok := <-msgs:
+			if !ok {
+				// Drained: complete windows are published; open ones stay
+				// for the next holder, who rebuilds them from the checkpoint.
+				return w.saveCheckpoint()
+			}
+			if err := w.handle(m); err != nil {
+				it.Stop()
+				return err
+			}
+		case <-tick.C:
+			if err := w.closeReady(time.Now(), w.svc.site.Service.Idle.Duration); err != nil {
+				it.Stop()
+				return err
+			}
+		}
+	}
+}
+
+func (w *assetWorker) tickEvery() time.Duration {
+	d := w.svc.site.Service.Idle.Duration / 4
+	if d > 250*time.Millisecond {
+		d = 250 * time.Millisecond
+	}
+	if d < 10*time.Millisecond {
+		d = 10 * time.Millisecond
+	}
+	return d
+}
+
+// handle files one message and publishes the windows it completes.
+func (w *assetWorker) handle(m jetstream.Msg) error {
+	met := w.svc.met
+	md, err := m.Metadata()
+	if err != nil {
+		return fmt.Errorf("live: asset %s: message metadata: %w", w.asset.Name, err)
+	}
+	seq := md.Sequence.Stream
+	met.pending.WithLabelValues(w.asset.Name).Set(float64(md.NumPending))
+	replayed := seq <= w.ck.LastSeq // already examined by an earlier holder
+	subj := m.Subject()
+	data := m.Data()
+	if max := w.svc.site.Service.MaxMessageBytes; len(data) > max {
+		return w.deadLetter(broker.ReasonOversized, subj, seq, data, fmt.Errorf("live: %s: %d bytes, limit %d", subj, len(data), max))
+	}
+	_, sensor, err := broker.ParseDataSubject(subj)
+	if err != nil {
+		return w.deadLetter(broker.ReasonMalformed, subj, seq, data, err)
+	}
+	si, ok := w.sens[sensor]
+	if !ok {
+		return w.deadLetter(broker.ReasonUnknownSensor, subj, seq, data, fmt.Errorf("live: %s: sensor %q is not listed for asset %s in the site file", subj, sensor, w.asset.Name))
+	}
+	t0 := time.Now()
+	b, err := broker.Decode(subj, m.Headers().Get(broker.HeaderContentType), data)
+	met.stage.WithLabelValues("decode").Observe(time.Since(t0).Seconds())
+	if err != nil {
+		return w.deadLetter(broker.ReasonMalformed, subj, seq, data, err)
+	}
+	t0 = time.Now()
+	res, _ := w.asm.add(si, seq, b, t0)
+	met.stage.WithLabelValues("assemble").Observe(time.Since(t0).Seconds())
+	switch res {
+	case outOfOrder:
+		return w.deadLetter(broker.ReasonOutOfOrder, subj, seq, data,
+			fmt.Errorf("live: %s: batch starts at %v, not after the sensor's last sample", subj, b.Time[0]))
+	case late:
+		if replayed {
+			met.messages.WithLabelValues(w.asset.Name, "skipped").Inc()
+			return nil
+		}
+		return w.deadLetter(broker.ReasonLate, subj, seq, data,
+			fmt.Errorf("live: %s: samples from %v to %v fall in windows already published", subj, b.Time[0], b.Time[b.Len()-1]))
+	}
+	met.messages.WithLabelValues(w.asset.Name, "accepted").Inc()
+	met.samples.WithLabelValues(w.asset.Name).Add(float64(b.Len()))
+	return w.closeReady(t0, 0)
+}
+
+func (w *assetWorker) deadLetter(reason, subj string, seq uint64, data []byte, cause error) error {
+	w.svc.met.messages.WithLabelValues(w.asset.Name, "dead-letter").Inc()
+	w.svc.met.deadLetters.WithLabelValues(reason).Inc()
+	w.log.Warn("message refused", "reason", reason, "seq", seq, "err", cause)
+	ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
+	defer cancel()
+	return broker.DeadLetter(ctx, w.svc.stores.JS, reason, subj, seq, data, cause)
+}
+
+// closeReady publishes the windows that can be closed now.
+func (w *assetWorker) closeReady(now time.Time, idle time.Duration) error {
+	ws := w.asm.ready(now, idle)
+	if len(ws) == 0 {
+		return nil
+	}
+	for _, win := range ws {
+		w.svc.met.windows.WithLabelValues(w.asset.Name, win.Reason).Inc()
+		if err := w.window(win); err != nil {
+			return err
+		}
+	}
+	return w.saveCheckpoint()
+}
+
+// window processes one closed window: commissioning or solve, publish.
+func (w *assetWorker) window(win *Window) error {
+	if w.proc.est == nil {
+		return w.commission(win)
+	}
+	return w.publishWindow(win, nil)
+}
+
+func (w *assetWorker) publishWindow(win *Window, r *reduced) error {
+	met := w.svc.met
+	t0 := time.Now()
+	if r == nil {
+		r = w.proc.reduce(win)
+	}
+	t1 := time.Now()
+	est, alarms := w.proc.solve(win, r)
+	t2 := time.Now()
+	met.stage.WithLabelValues("reduce").Observe(t1.Sub(t0).Seconds())
+	met.stage.WithLabelValues("solve").Observe(t2.Sub(t1).Seconds())
+	if est.Quality == "failed" {
+		met.estimates.WithLabelValues(w.asset.Name, "failed").Inc()
+	}
+	data, err := json.Marshal(est)
+	if err != nil {
+		return fmt.Errorf("live: asset %s: encode estimate: %w", w.asset.Name, err)
+	}
+	id := w.asset.Name + "/" + strconv.FormatInt(win.Index, 10)
+	msg := nats.NewMsg(broker.EstimateSubject(w.asset.Name))
+	msg.Data = data
+	msg.Header.Set(broker.HeaderContentType, broker.ContentJSON)
+	ack, err := w.svc.publish(msg, id)
+	if err != nil {
+		return err
+	}
+	if ack.Duplicate {
+		met.estimates.WithLabelValues(w.asset.Name, "duplicate").Inc()
+	} else {
+		met.estimates.WithLabelValues(w.asset.Name, "published").Inc()
+	}
+	for _, al := range alarms {
+		ad, _ := json.Marshal(al)
+		am := nats.NewMsg(broker.AlarmSubject(w.asset.Name, al.Kind))
+		am.Data = ad
+		am.Header.Set(broker.HeaderContentType, broker.ContentJSON)
+		aack, err := w.svc.publish(am, id+"/"+al.Kind+"/"+al.Subject)
+		if err != nil {
+			return err
+		}
+		if !aack.Duplicate {
+			met.alarms.WithLabelValues(w.asset.Name, al.Kind).Inc()
+		}
+	}
+	ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
+	defer cancel()
+	if _, err := w.svc.stores.Latest.Put(ctx, w.asset.Name, data); err != nil {
+		return fmt.Errorf("live: asset %s: latest: %w", w.asset.Name, err)
+	}
+	now := time.Now()
+	met.stage.WithLabelValues("publish").Observe(now.Sub(t2).Seconds())
+	met.latency.WithLabelValues(w.asset.Name).Observe(now.Sub(win.Closed).Seconds())
+	met.dataLag.WithLabelValues(w.asset.Name).Set(float64(now.UnixNano())/1e9 - win.End)
+	w.ck.Done, w.ck.Window = win.End, win.Index
+	if w.svc.onEstimate != nil {
+		w.svc.onEstimate(est, now.Sub(win.Closed))
+	}
+	return nil
+}
+
+func (w *assetWorker) saveCheckpoint() error {
+	t0 := time.Now()
+	resume := w.asm.resumeSeq()
+	if len(w.pending) > 0 && w.pending[0].minSeq < resume {
+		resume = w.pending[0].minSeq
+	}
+	w.ck.ResumeSeq = resume
+	w.ck.LastSeq = w.asm.lastSeq
+	w.ck.Prev = w.proc.prev
+	w.ck.Worker = w.svc.id
+	data, _ := json.Marshal(w.ck)
+	ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
+	defer cancel()
+	if _, err := w.svc.stores.State.Put(ctx, checkpointKey(w.asset.Name), data); err != nil {
+		return fmt.Errorf("live: asset %s: checkpoint: %w", w.asset.Name, err)
+	}
+	w.svc.met.stage.WithLabelValues("checkpoint").Observe(time.Since(t0).Seconds())
+	return nil
+}
