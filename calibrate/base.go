@@ -124,10 +124,11 @@ func BaseCorrectColumns(roverName string, rt []float64, rb [3][]float64, baseNam
 	}
 
 	rlo, rhi := math.Inf(1), math.Inf(-1)
-	for _, t := range rt {
-		if !math.IsNaN(t) {
-			rlo, rhi = math.Min(rlo, t), math.Max(rhi, t)
+	for i, t := range rt {
+		if math.IsNaN(t) || math.IsInf(t, 0) {
+			return nil, fmt.Errorf("calibrate: base correction: %s: row %d: time is %g", roverName, i, t)
 		}
+		rlo, rhi = math.Min(rlo, t), math.Max(rhi, t)
 	}
 	if len(rt) == 0 {
 		return rep, nil
@@ -144,9 +145,6 @@ func BaseCorrectColumns(roverName string, rt []float64, rb [3][]float64, baseNam
 		lo[k], hi[k] = math.Inf(1), math.Inf(-1)
 	}
 	for i, t := range rt {
-		if math.IsNaN(t) {
-			return nil, fmt.Errorf("calibrate: base correction: %s: row %d: time is NaN", roverName, i)
-		}
 		out, inGap := false, false
 		for k := 0; k < 3; k++ {
 			v, o, g := series[k].at(t)
