@@ -52,6 +52,7 @@ type view struct {
 	DepthNote  string
 	Profiles   []template.HTML
 	Groups     []groupRow
+	FitNotes   []string
 	DepthRef   string
 	FrameText  string
 	SignalText string
@@ -111,6 +112,7 @@ func newView(d *Document) (*view, error) {
 	for i := range d.Groups {
 		v.Groups = append(v.Groups, v.groupRow(&d.Groups[i]))
 	}
+	v.FitNotes = fitNotes(d)
 	if err := v.plots(); err != nil {
 		return nil, err
 	}
@@ -221,6 +223,47 @@ func (v *view) groupRow(g *Group) groupRow {
 	r.Current, r.Phase = strings.Join(cur, "; "), strings.Join(ph, "; ")
 	r.Depth, r.Cover, r.Azimuth = strings.Join(dep, "; "), strings.Join(cov, "; "), strings.Join(az, "; ")
 	return r
+}
+
+// fitNotes gathers the fits' notes, each text once with the groups it
+// applies to, in order of first appearance.
+func fitNotes(d *Document) []string {
+	var order []string
+	groups := map[string][]string{}
+	add := func(text, key string) {
+		if _, seen := groups[text]; !seen {
+			order = append(order, text)
+		}
+		if key == "" {
+			key = "(all)"
+		}
+		if g := groups[text]; len(g) == 0 || g[len(g)-1] != key {
+			groups[text] = append(g, key)
+		}
+	}
+	for _, g := range d.Groups {
+		for _, n := range g.Notes {
+			add(n, g.Key)
+		}
+		for i, s := range g.Sources {
+			for _, n := range s.Notes {
+				if len(g.Sources) > 1 {
+					n = fmt.Sprintf("conductor %d: %s", i+1, n)
+				}
+				add(n, g.Key)
+			}
+		}
+	}
+	out := make([]string, len(order))
+	for i, text := range order {
+		gs := groups[text]
+		if len(d.Groups) == 1 {
+			out[i] = text
+			continue
+		}
+		out[i] = text + " (" + plural(len(gs), "group") + ": " + strings.Join(gs, ", ") + ")"
+	}
+	return out
 }
 
 // en formats a plan position as "E 12.3 N -4.5", without negative zeros.

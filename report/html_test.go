@@ -91,6 +91,25 @@ func TestHTMLSingleGroup(t *testing.T) {
 	}
 }
 
+func TestFitNotes(t *testing.T) {
+	d := fenwickLane(false)
+	d.Groups[0].Notes = []string{"robust weights applied"}
+	d.Groups[2].Notes = []string{"robust weights applied"}
+	d.Groups[5].Sources[0].Notes = []string{"dip held at 0.0 deg"}
+	got := fitNotes(d)
+	want := []string{"robust weights applied (2 groups: T01, T03)", "dip held at 0.0 deg (1 group: T06)"}
+	if !reflect.DeepEqual(got, want) {
+		t.Errorf("notes %q, want %q", got, want)
+	}
+	var buf bytes.Buffer
+	if err := WriteHTML(&buf, d); err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(buf.String(), "<li>robust weights applied (2 groups: T01, T03)</li>") {
+		t.Error("page lacks the fit notes")
+	}
+}
+
 func TestWriteFiles(t *testing.T) {
 	dir := filepath.Join(t.TempDir(), "out", "fenwick")
 	d := fenwickLane(true)

@@ -117,6 +117,10 @@ footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rul
 {{end}}</tbody>
 </table>
 <p class="values">Uncertainties are one standard deviation. Depth is {{.DepthRef}}.</p>
+{{if .FitNotes}}<h3>Notes from the fits</h3>
+<ul class="values">
+{{range .FitNotes}}<li>{{.}}</li>
+{{end}}</ul>{{end}}
 </section>
 
 <section>
