@@ -11,6 +11,9 @@ import (
 // squares at the seed and this many are iterated to convergence.
 const polishKeep = 3
 
+// roughIter bounds the iterations of an intermediate fit that only seeds the next.
+const roughIter = 12
+
 // candidate is one converged (or screened) K-line fit.
 type candidate struct {
 	sp    *separable
@@ -52,6 +55,8 @@ func FitLines(p *Problem, set *Settings) (*Result, error) {
 		var prev *candidate
 		var err error
 		for k := 1; k <= s.Count; k++ {
+			// Fits with fewer lines only seed the next: a rough one will do.
+			f.rough = k < s.Count
 			prev, err = f.fitK(k, prev)
 			if err != nil {
 				return nil, err
@@ -99,10 +104,13 @@ func FitLines(p *Problem, set *Settings) (*Result, error) {
 }
 
 type fitter struct {
-	sv     *survey
-	set    *Settings
-	prob   *Problem
-	starts int
+	sv        *survey
+	set       *Settings
+	prob      *Problem
+	starts    int
+	floor     float64 // noiseFloor, once computed
+	floorDone bool
+	rough     bool // an intermediate fit that only seeds the next: one start, few iterations
 }
 
 func (f *fitter) holds() (holdAz, holdDip bool, az, dip float64) {
@@ -239,10 +247,14 @@ func (f *fitter) bestOf(starts []start, quick bool) (*candidate, error) {
 	}
 	sort.Slice(rs, func(i, j int) bool { return rs[i].rss < rs[j].rss })
 	var best *candidate
-	for _, st := range rs[:min(polishKeep, len(rs))] {
+	keep, ls := polishKeep, f.set.lm()
+	if f.rough {
+		keep, ls.maxIter = 1, roughIter
+	}
+	for _, st := range rs[:min(keep, len(rs))] {
 		lmp, _ := st.sp.problem()
 		f.starts++
-		res, err := levmar(lmp, st.x0, f.set.lm())
+		res, err := levmar(lmp, st.x0, ls)
 		if err != nil {
 			if firstErr == nil {
 				firstErr = err
@@ -252,6 +264,14 @@ func (f *fitter) bestOf(starts []start, quick bool) (*candidate, error) {
 		agree := best != nil && math.Abs(res.rss-best.rss) <= 1e-8*best.rss
 		if quick && res.status.Converged() && !st.sp.atBound(res.x) {
 			agree = true
+		}
+		// A fit that explains the readings to their noise level cannot be bettered
+		// materially by another start.
+		if floor := f.noiseFloor(); floor > 0 && res.status.Converged() && !st.sp.atBound(res.x) {
+			n, k := st.sp.m*st.sp.nrhs, st.sp.nparams()+st.sp.q*st.sp.nrhs
+			if n > k && math.Sqrt(res.rss/float64(n-k)) <= 1.2*floor {
+				agree = true
+			}
 		}
 		if best == nil || res.rss < best.rss {
 			best = &candidate{sp: st.sp, x: res.x, res: res, rss: res.rss, iters: res.iter}
@@ -265,6 +285,40 @@ func (f *fitter) bestOf(starts []start, quick bool) (*candidate, error) {
 		return nil, firstErr
 	}
 	return best, nil
+}
+
+// noiseFloor returns the reading noise per axis: Problem.Sigma, or an estimate from the
+// readings themselves, 1.4826 MAD of the second differences of consecutive readings
+// divided by sqrt(6) (for white noise Var(y[i-1] - 2 y[i] + y[i+1]) = 6 sigma^2). The
+// signal's own curvature can only raise the estimate. Zero when it cannot be formed.
+func (f *fitter) noiseFloor() float64 {
+	if f.floorDone {
+		return f.floor
+	}
+	f.floorDone = true
+	if f.prob.Sigma > 0 {
+		f.floor = f.prob.Sigma
+		return f.floor
+	}
+	n, nr := len(f.sv.pts), f.sv.nrhs
+	if n < 5 {
+		return 0
+	}
+	var d2 []float64
+	for i := 1; i+1 < n; i++ {
+		for j := range 3 {
+			for k := range nr {
+				at := func(p int) float64 { return f.sv.y[(3*p+j)*nr+k] }
+				d2 = append(d2, at(i-1)-2*at(i)+at(i+1))
+			}
+		}
+	}
+	med := median(d2)
+	for i, v := range d2 {
+		d2[i] = math.Abs(v - med)
+	}
+	f.floor = 1.4826 * median(d2) / math.Sqrt(6)
+	return f.floor
 }
 
 // addDipole adds one point dipole to a fit, seeded under the peak of its residual at
