@@ -1,0 +1,126 @@
+package broker
+
+import (
+	"context"
+	"math"
+	"strings"
+	"testing"
+	"time"
+
+	"undercurrent/ingest"
+)
+
+func groupedLog(n int) *ingest.Samples {
+	s := &ingest.Samples{Source: "harrow-fen-fixed.csv"}
+	for i := 0; i < n; i++ {
+		for _, g := range []string{"s1", "s2"} {
+			s.Time = append(s.Time, 1764650000+float64(i)/100)
+			s.Bx = append(s.Bx, float64(i))
+			s.By = append(s.By, 1)
+			s.Bz = append(s.Bz, 48000)
+			s.Group = append(s.Group, g)
+		}
+	}
+	return s
+}
+
+func TestSplitSamples(t *testing.T) {
+	s := groupedLog(100) // 1 s at 100 Hz, two sensors
+	bs, err := SplitSamples(s, "fenwick-lane", "", 0.25)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(bs) != 8 {
+		t.Fatalf("%d batches, want 8 (4 per sensor)", len(bs))
+	}
+	var total int
+	for i, b := range bs {
+		total += b.Len()
+		if b.Len() != 25 {
+			t.Errorf("batch %d has %d samples, want 25", i, b.Len())
+		}
+		if i > 0 && b.Time[b.Len()-1] < bs[i-1].Time[bs[i-1].Len()-1] {
+			t.Errorf("batch %d out of time order", i)
+		}
+		if err := b.Validate("batch"); err != nil {
+			t.Error(err)
+		}
+	}
+	if total != 200 {
+		t.Errorf("%d samples in batches, want 200", total)
+	}
+	one, err := SplitSamples(s, "fenwick-lane", "s2", 10)
+	if err != nil || len(one) != 1 || one[0].Sensor != "s2" || one[0].Len() != 100 {
+		t.Fatalf("selecting s2: %v %+v", err, one)
+	}
+	// A missing value skips its row.
+	s.Bz[3] = math.NaN()
+	if bs, _ := SplitSamples(s, "fenwick-lane", "s2", 10); bs[0].Len() != 99 {
+		t.Errorf("row with NaN not skipped: %d samples", bs[0].Len())
+	}
+}
+
+func TestSplitSamplesErrors(t *testing.T) {
+	s := groupedLog(5)
+	s.Time[6] = s.Time[4] // sensor s1, row 7 repeats row 5's time
+	cases := []struct {
+		name          string
+		s             *ingest.Samples
+		asset, sensor string
+		want          string
+	}{
+		{"backwards time names row", s, "fenwick-lane", "", "row 7: column time"},
+		{"no group and no sensor", &ingest.Samples{Source: "x.csv", Time: []float64{1}, Bx: []float64{1}, By: []float64{1}, Bz: []float64{1}}, "a", "", "name the sensor"},
+		{"bad asset", groupedLog(2), "a b", "", `name "a b"`},
+		{"bad group", func() *ingest.Samples { g := groupedLog(2); g.Group[0] = "s.1"; return g }(), "a", "", "row 1: column group"},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			_, err := SplitSamples(tc.s, tc.asset, tc.sensor, 1)
+			if err == nil || !strings.Contains(err.Error(), tc.want) {
+				t.Fatalf("error %v, want one containing %q", err, tc.want)
+			}
+		})
+	}
+}
+
+func TestReplay(t *testing.T) {
+	if testing.Short() {
+		t.Skip("starts a broker")
+	}
+	ctx, cancel := context.WithTimeout(context.Background(), 30*time.Second)
+	defer cancel()
+	s := startTestServer(t, ServerConfig{MQTTPort: -1})
+	_, js := connectJS(t, s.ClientURL(), Auth{})
+	if _, err := Setup(ctx, js, StreamSettings{Memory: true}); err != nil {
+		t.Fatal(err)
+	}
+	bs, err := SplitSamples(groupedLog(50), "fenwick-lane", "", 0.1)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var calls int
+	st, err := Replay(ctx, js, bs, &ReplaySettings{Speed: 100, Encoding: ContentArrow, Shift: 10, Progress: func(d, n int) { calls++ }})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if st.Batches != 10 || st.Samples != 100 || st.Duplicates != 0 || len(st.Sensors) != 2 || calls != 10 {
+		t.Fatalf("stats %+v, progress calls %d", st, calls)
+	}
+	if st.From != 1764650010 {
+		t.Errorf("first time sent %v, want the shifted 1764650010", st.From)
+	}
+	// Replaying again stores nothing twice.
+	st2, err := Replay(ctx, js, bs, &ReplaySettings{Shift: 10})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if st2.Duplicates != 10 {
+		t.Errorf("second replay: %d duplicates, want 10", st2.Duplicates)
+	}
+	info, _ := js.Stream(ctx, StreamData)
+	si, _ := info.Info(ctx)
+	if si.State.Msgs != 10 {
+		t.Errorf("stream holds %d messages, want 10", si.State.Msgs)
+	}
+}
