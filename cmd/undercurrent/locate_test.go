@@ -279,3 +279,67 @@ func routeLog(b *testing.B) string {
 	}
 	return log
 }
+
+// TestLocateDespike puts five spikes of 3,000 nT into one traverse: with
+// --despike they are removed (and said so) and the traverse is recovered
+// within its uncertainty; without it that traverse fits far worse.
+func TestLocateDespike(t *testing.T) {
+	sc, _ := scenario(t, "single-line.toml")
+	s, err := simulate.Simulate(sc)
+	if err != nil {
+		t.Fatal(err)
+	}
+	spiked := 0
+	for i := range s.Len() {
+		if s.Group[i] == "T03" && i%13 == 0 {
+			s.Bx[i] += 3000
+			spiked++
+		}
+	}
+	if spiked < 5 {
+		t.Fatalf("only %d spikes", spiked)
+	}
+	log := filepath.Join(t.TempDir(), "spiky.csv")
+	if err := ingest.WriteSamples(log, s); err != nil {
+		t.Fatal(err)
+	}
+	var clean, raw resultDoc
+	var warned struct {
+		Warnings []string `json:"warnings"`
+	}
+	out := mustCLI(t, "locate", "--json", "--despike", "--group-by", "group", "--reference-z", "0", log)
+	if err := json.Unmarshal([]byte(out), &clean); err != nil {
+		t.Fatal(err)
+	}
+	json.Unmarshal([]byte(out), &warned)
+	if len(warned.Warnings) == 0 || !strings.Contains(warned.Warnings[0], "removed") {
+		t.Errorf("no warning about removed spikes: %v", warned.Warnings)
+	}
+	if err := json.Unmarshal([]byte(mustCLI(t, "locate", "--json", "--group-by", "group", "--reference-z", "0", log)), &raw); err != nil {
+		t.Fatal(err)
+	}
+	truth := crossingsByLine(sc)
+	for i, g := range clean.Groups {
+		checkCrossing(t, g.Key, g.Sources[0], truth[g.Key][0], 0, 0)
+		if g.Key == "T03" && raw.Groups[i].RMS < 10*g.RMS {
+			t.Errorf("T03 rms %.3g nT with spikes, %.3g without: the spikes do not show", raw.Groups[i].RMS, g.RMS)
+		}
+	}
+}
+
+// TestProgressQuietOffTerminal checks that no progress bar is drawn when
+// stderr is not a terminal.
+func TestProgressQuietOffTerminal(t *testing.T) {
+	var buf strings.Builder
+	if progressOn(&buf) != nil {
+		t.Error("progress bar on a buffer")
+	}
+	f, err := os.CreateTemp(t.TempDir(), "stderr")
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	if progressOn(f) != nil {
+		t.Error("progress bar on a regular file")
+	}
+}
