@@ -217,6 +217,13 @@ func (f *fitter) summarise(c *candidate) (*summary, error) {
 		su.lines = append(su.lines, e)
 		off += g.nfree()
 	}
+	// A line far weaker than the strongest often absorbs departures from the model (a
+	// finite or bending conductor, an induced return) rather than marking a conductor.
+	for i := 1; i < len(su.lines); i++ {
+		if r := math.Abs(su.lines[i].Current) / math.Abs(su.lines[0].Current); r < weakLine {
+			su.lines[i].Notes = append(su.lines[i].Notes, fmt.Sprintf("weak line (%.1f%% of the strongest current): it may absorb departures from the straight-line model rather than mark a conductor", 100*r))
+		}
+	}
 	for di, d := range sp.dips {
 		e := SourceEstimate{Kind: "dipole", Point: d.pos}
 		sd := func(j int) float64 { return math.Sqrt(math.Max(su.cov.At(j, j), 0)) }
@@ -244,6 +251,9 @@ func (f *fitter) summarise(c *candidate) (*summary, error) {
 	}
 	return su, nil
 }
+
+// weakLine is the fraction of the strongest current below which a line gets a caution.
+const weakLine = 0.02
 
 // Indices of the reported quantities per line in deriveQuantities.
 const (

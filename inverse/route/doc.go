@@ -8,7 +8,8 @@
 // looks for four things:
 //
 //   - steps in current: current leaving the conductor between two stations
-//     (a coating defect, a leak to earth, a tee);
+//     (a coating defect, a leak to earth, a tee), and stations whose current
+//     departs from both neighbours (a local disturbance, not a step);
 //   - cover shallower than a minimum the caller names;
 //   - stations whose fit is poor or ambiguous;
 //   - dipole-like anomalies: fields better explained by a magnetised
@@ -53,7 +54,13 @@
 //
 // Steps are found one at a time, the most significant first, and each one
 // found is left out of the trend of the others, so that a step is never taken
-// for part of the trend. The step is bracketed between the two stations, whose chainages are the
+// for part of the trend. Two steps either side of one station that cancel
+// (down and back up to within k sigma) mark that station as a current
+// anomaly, a local disturbance such as a magnetised object distorting its
+// fit; it is reported, left out, and the search runs again. Adjacent steps of
+// the same sign are one step spread over the stations between them (a fault
+// close to a traverse shows partly in the traverse's own current), reported
+// once with its total size. The step is bracketed between the two stations, whose chainages are the
 // finding's range; its size is dI with sigma s.
 //
 // # Cover

@@ -10,6 +10,9 @@ const (
 	// KindCurrentStep is a change in current between two stations larger
 	// than its uncertainty: current leaving (or joining) the conductor.
 	KindCurrentStep Kind = "current-step"
+	// KindCurrentAnomaly is a station whose current departs from both
+	// neighbours alike: a local disturbance rather than a step.
+	KindCurrentAnomaly Kind = "current-anomaly"
 	// KindShallowCover is cover shallower than Settings.MinCover.
 	KindShallowCover Kind = "shallow-cover"
 	// KindPoorFit is a station whose fit failed, is poor or is ambiguous.

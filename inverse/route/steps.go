@@ -7,7 +7,11 @@ import (
 )
 
 // steps reports changes in current between successive usable stations
-// that exceed their uncertainty once the smooth trend is removed.
+// that exceed their uncertainty once the smooth trend is removed. A station
+// whose current departs from both neighbours (a step down and straight
+// back up, or up and back down) is reported as a current anomaly and left
+// out, and the search repeats without it. Adjacent steps of the same sign
+// are reported as one step spread over the stations between them.
 func steps(ps []Placed, set *Settings) []Finding {
 	var u []*Placed
 	for i := range ps {
@@ -15,72 +19,155 @@ func steps(ps []Placed, set *Settings) []Finding {
 			u = append(u, &ps[i])
 		}
 	}
-	m := len(u) - 1 // intervals
-	if m < 1 {
-		return nil
+	k := set.stepK()
+	var out []Finding
+	for {
+		if len(u) < 2 {
+			return out
+		}
+		d := detect(u, set)
+		spike := -1
+		for j := 0; j+1 < len(d.isStep); j++ {
+			if !d.isStep[j] || !d.isStep[j+1] || (d.dI[j] > 0) == (d.dI[j+1] > 0) {
+				continue
+			}
+			// Down and back up (or up and back down) to the same level?
+			back := u[j+2].Current - u[j].Current
+			if math.Abs(back) <= k*math.Hypot(u[j].CurrentSigma, u[j+2].CurrentSigma) {
+				spike = j + 1
+				break
+			}
+		}
+		if spike < 0 {
+			return append(out, stepFindings(u, d)...)
+		}
+		out = append(out, anomaly(u[spike-1], u[spike], u[spike+1]))
+		u = append(u[:spike:spike], u[spike+1:]...)
 	}
-	dI := make([]float64, m)
+}
+
+// detection holds the per-interval step test over a list of stations.
+type detection struct {
+	dI, s, excess, total []float64
+	isStep               []bool
+}
+
+// detect tests every interval between successive stations of u.
+func detect(u []*Placed, set *Settings) *detection {
+	m := len(u) - 1 // intervals
+	d := &detection{dI: make([]float64, m), s: make([]float64, m), excess: make([]float64, m), total: make([]float64, m), isStep: make([]bool, m)}
 	dx := make([]float64, m)
-	s := make([]float64, m)
 	for j := 0; j < m; j++ {
-		dI[j] = u[j+1].Current - u[j].Current
+		d.dI[j] = u[j+1].Current - u[j].Current
 		dx[j] = u[j+1].Chainage - u[j].Chainage
-		s[j] = math.Hypot(u[j].CurrentSigma, u[j+1].CurrentSigma)
+		d.s[j] = math.Hypot(u[j].CurrentSigma, u[j+1].CurrentSigma)
 	}
 	k := set.stepK()
 	w := set.trendWindow()
 	// Find steps one at a time, largest first, leaving each one found out
 	// of the trend of the others: a step must not pass for a trend.
-	isStep := make([]bool, m)
-	excess := make([]float64, m)
-	total := make([]float64, m)
 	for {
 		best, bestZ := -1, k
 		for j := 0; j < m; j++ {
-			if isStep[j] || s[j] == 0 {
+			if d.isStep[j] || d.s[j] == 0 {
 				continue // no uncertainty given: nothing can be called significant
 			}
-			g, gs := trend(dI, dx, s, isStep, j, w)
-			excess[j] = dI[j] - g*dx[j]
-			total[j] = math.Hypot(s[j], gs*dx[j])
-			if z := math.Abs(excess[j]) / total[j]; z > bestZ {
+			g, gs := trend(d.dI, dx, d.s, d.isStep, j, w)
+			d.excess[j] = d.dI[j] - g*dx[j]
+			d.total[j] = math.Hypot(d.s[j], gs*dx[j])
+			if z := math.Abs(d.excess[j]) / d.total[j]; z > bestZ {
 				best, bestZ = j, z
 			}
 		}
 		if best < 0 {
-			break
+			return d
 		}
-		isStep[best] = true
+		d.isStep[best] = true
 	}
+}
+
+// stepFindings turns runs of same-sign step intervals into findings.
+func stepFindings(u []*Placed, d *detection) []Finding {
 	var out []Finding
+	m := len(d.isStep)
 	for j := 0; j < m; j++ {
-		if !isStep[j] {
+		if !d.isStep[j] {
 			continue
 		}
-		a, b := u[j], u[j+1]
-		verb, why := "falls", "current leaving the conductor between them"
-		if math.Abs(b.Current) > math.Abs(a.Current) {
-			verb, why = "rises", "current joining the conductor (a bond, a tee or another source) between them"
+		last := j // the run of same-sign steps j..last
+		for last+1 < m && d.isStep[last+1] && (d.dI[last+1] > 0) == (d.dI[j] > 0) {
+			last++
 		}
+		a, b := u[j], u[last+1]
+		size := b.Current - a.Current
+		sigma := math.Hypot(a.CurrentSigma, b.CurrentSigma)
+		big := j
+		var excess, total float64
+		for i := j; i <= last; i++ {
+			if math.Abs(d.dI[i]) > math.Abs(d.dI[big]) {
+				big = i
+			}
+			excess += d.excess[i]
+			total = math.Hypot(total, d.total[i])
+		}
+		verb, why := "falls", "current leaving the conductor"
+		if math.Abs(b.Current) > math.Abs(a.Current) {
+			verb, why = "rises", "current joining the conductor (a bond, a tee or another source)"
+		}
+		msg := fmt.Sprintf("current %s by %.3g ± %.2g A between %s (chainage %.1f m) and %s (%.1f m): %s between them",
+			verb, math.Abs(size), sigma, label(a), a.Chainage, label(b), b.Chainage, why)
 		f := Finding{
 			Kind:     KindCurrentStep,
 			Severity: SeverityWarning,
 			From:     a.Chainage,
 			To:       b.Chainage,
-			Position: mid(a.Point, b.Point),
-			Keys:     []string{a.Key, b.Key},
-			Message: fmt.Sprintf("current %s by %.3g ± %.2g A between %s (chainage %.1f m) and %s (%.1f m): %s",
-				verb, math.Abs(dI[j]), s[j], label(a), a.Chainage, label(b), b.Chainage, why),
+			Position: mid(u[big].Point, u[big+1].Point),
+			Message:  msg,
 			Values: []Value{
-				{Name: "step", Value: dI[j], Sigma: s[j], Unit: "A"},
-				{Name: "step beyond trend", Value: excess[j], Sigma: total[j], Unit: "A"},
+				{Name: "step", Value: size, Sigma: sigma, Unit: "A"},
+				{Name: "step beyond trend", Value: excess, Sigma: total, Unit: "A"},
 				{Name: "current before", Value: a.Current, Sigma: a.CurrentSigma, Unit: "A"},
 				{Name: "current after", Value: b.Current, Sigma: b.CurrentSigma, Unit: "A"},
 			},
 		}
+		for i := j; i <= last+1; i++ {
+			f.Keys = append(f.Keys, u[i].Key)
+		}
+		if last > j {
+			p, q := u[big], u[big+1]
+			f.Message = fmt.Sprintf("%s; most of it (%.3g ± %.2g A) between %s and %s, nearest the station between two steps", msg,
+				math.Abs(d.dI[big]), d.s[big], label(p), label(q))
+			f.Values = append(f.Values, Value{Name: "largest part", Value: d.dI[big], Sigma: d.s[big], Unit: "A"})
+		}
 		out = append(out, f)
+		j = last
 	}
 	return out
+}
+
+// anomaly reports station p whose current departs from both neighbours a
+// and b alike.
+func anomaly(a, p, b *Placed) Finding {
+	dep := p.Current - (a.Current+b.Current)/2
+	sigma := math.Sqrt(p.CurrentSigma*p.CurrentSigma + (a.CurrentSigma*a.CurrentSigma+b.CurrentSigma*b.CurrentSigma)/4)
+	dir := "below"
+	if dep > 0 {
+		dir = "above"
+	}
+	return Finding{
+		Kind:     KindCurrentAnomaly,
+		Severity: SeverityCaution,
+		From:     p.Chainage,
+		To:       p.Chainage,
+		Position: p.Point,
+		Keys:     []string{a.Key, p.Key, b.Key},
+		Message: fmt.Sprintf("current at %s (chainage %.1f m) is %.3g ± %.2g A %s both neighbours, %s and %s: more likely a local disturbance (a magnetised object nearby, a poor fit) than current leaving and rejoining; it is left out of the step search",
+			label(p), p.Chainage, math.Abs(dep), sigma, dir, label(a), label(b)),
+		Values: []Value{
+			{Name: "departure from neighbours", Value: dep, Sigma: sigma, Unit: "A"},
+			{Name: "current", Value: p.Current, Sigma: p.CurrentSigma, Unit: "A"},
+		},
+	}
 }
 
 // trend returns the median gradient of up to w intervals on each side of
