@@ -229,6 +229,7 @@ func Load(path string) (*Calibration, error) {
 	if err := dec.Decode(&c); err != nil {
 		return nil, jsonError(path, data, err)
 	}
+
 	if err := c.Validate(); err != nil {
 		return nil, fmt.Errorf("calibrate: %s: %w", path, err)
 	}
