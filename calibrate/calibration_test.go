@@ -76,7 +76,7 @@ func TestLoadRejects(t *testing.T) {
 		{"unknown field", `{"version": 1, "method": "zero", "offest_nt": [1,2,3], "matrix": [[1,0,0],[0,1,0],[0,0,1]]}`, "offest_nt"},
 		{"singular", `{"version": 1, "method": "zero", "matrix": [[1,0,0],[0,0,0],[0,0,1]]}`, "singular"},
 		{"method", `{"version": 1, "method": "guess", "matrix": [[1,0,0],[0,1,0],[0,0,1]]}`, `"guess"`},
-		{"trailing", "{\"version\": 1, \"method\": \"zero\", \"matrix\": [[1,0,0],[0,1,0],[0,0,1]]}\n{}", ":1: unexpected data"},
+		{"trailing", "{\"version\": 1, \"method\": \"zero\", \"matrix\": [[1,0,0],[0,1,0],[0,0,1]]}\n{}", ":2:2: invalid character"},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			p := filepath.Join(dir, "cal.json")
