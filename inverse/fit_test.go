@@ -99,12 +99,6 @@ func TestTwoConductors(t *testing.T) {
 			wantOff := []float64{-0.3, 0.3}
 			for i, e := range res.Sources {
 				t.Logf("line %d: I %.3f+-%.3f depth %.4f+-%.4f offset %.4f+-%.4f az %.2f+-%.2f", i, e.Current, e.CurrentSigma, e.Depth, e.DepthSigma, e.Offset, e.OffsetSigma, e.Azimuth, e.AzimuthSigma)
-				// Orientation: a line running south with +I is the same as north with -I.
-				sign := 1.0
-				if math.Abs(e.Azimuth-180) < 20 || e.Azimuth > 90 {
-					sign = -1
-				}
-				_ = sign
 				within3(t, "current", e.Current, cur[i], e.CurrentSigma)
 				within3(t, "depth", e.Depth, 0.9, e.DepthSigma)
 				within3(t, "offset", e.Offset, wantOff[i], e.OffsetSigma)

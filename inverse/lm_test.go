@@ -160,3 +160,87 @@ func TestLMBounds(t *testing.T) {
 		t.Errorf("status %v", res.status)
 	}
 }
+
+// TestVarProMGH09: MGH09 is linear in (b1, b1 b2) (DOMAIN.md), so variable projection
+// leaves only (b3, b4) to iterate: the reduced residual is P_perp(b3, b4) y and its
+// Jacobian Kaufman's -P_perp (dPhi/db) c, as in the line fits. From both certified starts
+// the LM engine reaches the certified parameters.
+func TestVarProMGH09(t *testing.T) {
+	c := nistCases()[1]
+	m := len(c.x)
+	basis := func(b []float64) (phi []float64, dphi [2][]float64) {
+		phi = make([]float64, m*2)
+		dphi = [2][]float64{make([]float64, m*2), make([]float64, m*2)}
+		for i, x := range c.x {
+			d := x*x + b[0]*x + b[1]
+			phi[i*2], phi[i*2+1] = x*x/d, x/d
+			for k := range 2 {
+				dphi[0][i*2+k] = -phi[i*2+k] * x / d // d/db3
+				dphi[1][i*2+k] = -phi[i*2+k] / d     // d/db4
+			}
+		}
+		return
+	}
+	// perp returns v - Phi Phi^+ v.
+	perp := func(phi, v []float64) ([]float64, []float64, error) {
+		cf, err := solveLinear(append([]float64(nil), phi...), m, 2, v, 1)
+		if err != nil {
+			return nil, nil, err
+		}
+		out := make([]float64, m)
+		for i := range m {
+			out[i] = v[i] - phi[i*2]*cf[0] - phi[i*2+1]*cf[1]
+		}
+		return out, cf, nil
+	}
+	p := &lmProblem{m: m, n: 2,
+		resid: func(b, r []float64) error {
+			phi, _ := basis(b)
+			pr, _, err := perp(phi, c.y)
+			copy(r, pr)
+			return err
+		},
+		jac: func(b, _ []float64, j *mat.Dense) error {
+			phi, dphi := basis(b)
+			_, cf, err := perp(phi, c.y)
+			if err != nil {
+				return err
+			}
+			for k := range 2 {
+				v := make([]float64, m)
+				for i := range m {
+					v[i] = dphi[k][i*2]*cf[0] + dphi[k][i*2+1]*cf[1]
+				}
+				pv, _, err := perp(phi, v)
+				if err != nil {
+					return err
+				}
+				for i := range m {
+					j.Set(i, k, -pv[i])
+				}
+			}
+			return nil
+		},
+	}
+	for si, start := range c.starts {
+		res, err := levmar(p, start[2:], lmSettings{maxIter: 1000})
+		if err != nil {
+			t.Fatal(err)
+		}
+		phi, _ := basis(res.x)
+		_, cf, err := perp(phi, c.y)
+		if err != nil {
+			t.Fatal(err)
+		}
+		got := []float64{cf[0], cf[1] / cf[0], res.x[0], res.x[1]}
+		for i, want := range c.params {
+			if !relClose(got[i], want, nistParamDigits) {
+				t.Errorf("start %d: b%d = %.10e, certified %.10e", si+1, i+1, got[i], want)
+			}
+		}
+		if !relClose(res.rss, c.rss, nistParamDigits) {
+			t.Errorf("start %d: RSS %.10e, certified %.10e", si+1, res.rss, c.rss)
+		}
+		t.Logf("start %d: %d iterations, %v", si+1, res.iter, res.status)
+	}
+}

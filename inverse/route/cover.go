@@ -73,11 +73,21 @@ func coverFinding(run []*Placed, sev Severity, set *Settings, single bool) Findi
 		To:       run[len(run)-1].Chainage,
 		Position: low.Point,
 		Keys:     keys,
-		Message: fmt.Sprintf("cover %.2f ± %.2f m %s %s the %.2f m minimum %s",
-			c, low.DepthSigma, where, verdict, math.Abs(set.MinCover), code),
+		Message: fmt.Sprintf("cover %s m %s %s the %.2f m minimum %s",
+			pm(c, low.DepthSigma), where, verdict, math.Abs(set.MinCover), code),
 		Values: []Value{
 			{Name: "cover", Value: c, Sigma: low.DepthSigma, Unit: "m"},
 			{Name: "minimum cover", Value: set.MinCover, Unit: "m"},
 		},
 	}
+}
+
+// pm formats v ± s with s to two significant digits and v to the same
+// decimals (at least two).
+func pm(v, s float64) string {
+	if s <= 0 || math.IsInf(s, 0) {
+		return fmt.Sprintf("%.2f", v)
+	}
+	d := max(2, 1-int(math.Floor(math.Log10(s))))
+	return fmt.Sprintf("%.*f ± %.*f", d, v, d, s)
 }

@@ -37,5 +37,5 @@ func ExampleBuild() {
 	// Output:
 	// route length 125 m
 	// warning current-step 50-75 m: current falls by 0.83 ± 0.042 A between T03 (chainage 50.0 m) and T04 (75.0 m): current leaving the conductor between them
-	// warning shallow-cover 100-100 m: cover 0.54 ± 0.02 m at T05 (chainage 100.0 m) is shallower than the 0.60 m minimum of NEC Table 300.5
+	// warning shallow-cover 100-100 m: cover 0.540 ± 0.020 m at T05 (chainage 100.0 m) is shallower than the 0.60 m minimum of NEC Table 300.5
 }

@@ -119,6 +119,61 @@ func TestStepFoundAndBracketed(t *testing.T) {
 	}
 }
 
+// A station whose fit is disturbed (its current 0.6 A low, as beside a
+// magnetised object) is a current anomaly, not a step out and a step back
+// in; the real step elsewhere is still found.
+func TestCurrentAnomaly(t *testing.T) {
+	st := spur(12, 0, cpCount)
+	st[6].Current -= 0.6
+	for i := 20; i < cpCount; i++ {
+		st[i].Current -= 1.0 // a real step between T19 and T20
+	}
+	r, err := Build(st, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var kinds []string
+	for _, f := range r.Findings {
+		kinds = append(kinds, string(f.Kind)+" "+strings.Join(f.Keys, "-"))
+	}
+	want := []string{"current-anomaly T05-T06-T07", "current-step T19-T20"}
+	if strings.Join(kinds, ", ") != strings.Join(want, ", ") {
+		t.Errorf("findings %q, want %q", kinds, want)
+	}
+	if v := r.Findings[0].Values[0]; math.Abs(v.Value+0.6) > 4*v.Sigma {
+		t.Errorf("departure %v, want -0.6 A", v)
+	}
+}
+
+// A fault beside a traverse shows partly in that traverse's current: two
+// adjacent steps of the same sign are one step, reported once with the
+// total and bracketed by the outer stations.
+func TestSpreadStepMerged(t *testing.T) {
+	st := spur(13, 0, cpCount)
+	st[15].Current -= 0.7 // partly
+	for i := 16; i < cpCount; i++ {
+		st[i].Current -= 1.4
+	}
+	r, err := Build(st, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if n := count(r, KindCurrentStep); n != 1 {
+		t.Fatalf("%d steps, want 1: %+v", n, r.Findings)
+	}
+	f := r.Findings[0]
+	if strings.Join(f.Keys, "-") != "T14-T15-T16" || !near(f.From, 14*cpSpacing) || !near(f.To, 16*cpSpacing) {
+		t.Errorf("step %v over %g..%g m, want T14-T15-T16 over 280..320 m", f.Keys, f.From, f.To)
+	}
+	want := cpI0*(math.Exp(-cpAlpha*f.To)-math.Exp(-cpAlpha*f.From)) - 1.4
+	if v := f.Values[0]; math.Abs(v.Value-want) > 4*v.Sigma {
+		t.Errorf("total step %v, want %.3f", v, want)
+	}
+	if !strings.Contains(f.Message, "most of it") {
+		t.Errorf("message %q does not say where most of the step is", f.Message)
+	}
+}
+
 // Two steps two intervals apart are both found, and neither makes the
 // interval between them look like a step.
 func TestTwoNearbySteps(t *testing.T) {
@@ -180,8 +235,10 @@ func TestRawDifferencesFlagDecay(t *testing.T) {
 	// further 2 sigma must be flagged.
 	flagged := map[float64]bool{}
 	for _, f := range r.Findings {
-		if f.Kind == KindCurrentStep {
-			flagged[math.Round(f.From/cpSpacing)] = true
+		if f.Kind == KindCurrentStep { // adjacent steps merge: mark every interval covered
+			for j := math.Round(f.From / cpSpacing); j < math.Round(f.To/cpSpacing); j++ {
+				flagged[j] = true
+			}
 		}
 	}
 	s := math.Sqrt2 * cpSigma

@@ -31,9 +31,14 @@ func steps(ps []Placed, set *Settings) []Finding {
 			if !d.isStep[j] || !d.isStep[j+1] || (d.dI[j] > 0) == (d.dI[j+1] > 0) {
 				continue
 			}
-			// Down and back up (or up and back down) to the same level?
-			back := u[j+2].Current - u[j].Current
-			if math.Abs(back) <= k*math.Hypot(u[j].CurrentSigma, u[j+2].CurrentSigma) {
+			// Down and back up (or up and back down) to the level of the
+			// trend? The middle station cancels from the sum of the two
+			// detrended steps; what is left is the outer stations' noise
+			// and the trend's.
+			back := d.excess[j] + d.excess[j+1]
+			v := u[j].CurrentSigma*u[j].CurrentSigma + u[j+2].CurrentSigma*u[j+2].CurrentSigma +
+				d.total[j]*d.total[j] - d.s[j]*d.s[j] + d.total[j+1]*d.total[j+1] - d.s[j+1]*d.s[j+1]
+			if math.Abs(back) <= k*math.Sqrt(v) {
 				spike = j + 1
 				break
 			}
