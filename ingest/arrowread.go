@@ -219,8 +219,11 @@ func (r *arrowReader) convert(rec arrow.RecordBatch) (arrow.RecordBatch, error) 
 				continue
 			}
 			for row, v := range cols[i].(*array.Float64).Float64Values() {
-				if v != v {
-					return nil, rowErr(r.name, r.batch, row, pl.header[pl.src[c]], "NaN", "NaN value; missing values are not allowed by default")
+				if v-v != 0 { // NaN or infinite
+					if v != v {
+						return nil, rowErr(r.name, r.batch, row, pl.header[pl.src[c]], "NaN", "NaN value; missing values are not allowed by default")
+					}
+					return nil, rowErr(r.name, r.batch, row, pl.header[pl.src[c]], strconv.FormatFloat(v, 'g', -1, 64), "value is infinite")
 				}
 			}
 		}

@@ -3,7 +3,6 @@ package ingest
 import (
 	"bufio"
 	"bytes"
-	"errors"
 	"fmt"
 	"io"
 	"math"
@@ -574,5 +573,3 @@ func (r *csvReader) Release() {
 	}
 	r.stop()
 }
-
-var errClosed = errors.New("reader released")

@@ -6,6 +6,8 @@ import (
 	"strings"
 	"testing"
 
+	"github.com/apache/arrow-go/v18/arrow"
+	"github.com/apache/arrow-go/v18/arrow/array"
 	"github.com/apache/arrow-go/v18/arrow/memory"
 )
 
@@ -60,4 +62,10 @@ func wantErr(t *testing.T, err error, want string) {
 	if !strings.Contains(err.Error(), want) {
 		t.Fatalf("error %q does not contain %q", err, want)
 	}
+}
+
+func floatCol(rec interface {
+	Column(int) arrow.Array
+}, i int) []float64 {
+	return rec.Column(i).(*array.Float64).Float64Values()
 }
