@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"strings"
 )
 
 // polishKeep is the multi-start budget: the starts are ranked by the projected sum of
@@ -47,6 +48,12 @@ func FitLines(p *Problem, set *Settings) (*Result, error) {
 		return nil, fmt.Errorf("inverse: %d readings are too few for a line fit", len(p.Points))
 	}
 	sv := newSurvey(p)
+	if sv.extent == 0 {
+		return nil, errors.New("inverse: all readings share one horizontal position; a line cannot be located from them")
+	}
+	if a := anomaly(sv.y, len(sv.pts), sv.nrhs); norm(a[peak(a)]) == 0 {
+		return nil, errors.New("inverse: the readings show no anomaly (the field is the same everywhere): nothing to locate")
+	}
 	if sv.single && s.Background == BackgroundGradient {
 		return nil, errors.New("inverse: a background gradient cannot be resolved from a single traverse; use BackgroundUniform")
 	}
@@ -200,11 +207,11 @@ func (f *fitter) fitK(k int, prev *candidate) (*candidate, error) {
 	}
 	best, err := f.bestOf(starts, k == 1 && f.sv.single)
 	if err != nil {
-		return nil, fmt.Errorf("inverse: fitting %d line(s): %w", k, err)
+		return nil, wrapf(err, "fitting %d line(s)", k)
 	}
 	for len(best.sp.dips) < f.set.Dipoles {
 		if best, err = f.addDipole(best); err != nil {
-			return nil, fmt.Errorf("inverse: fitting %d line(s) and %d dipole(s): %w", k, len(best.sp.dips)+1, err)
+			return nil, wrapf(err, "fitting %d line(s) and %d dipole(s)", k, len(best.sp.dips)+1)
 		}
 	}
 	if f.set.Robust {
@@ -484,4 +491,18 @@ func (f *fitter) guard(c *candidate) string {
 		}
 	}
 	return ""
+}
+
+// pkgError adds context to an error from this package without repeating its
+// "inverse: " prefix; errors.Is and errors.As see the original.
+type pkgError struct {
+	msg string
+	err error
+}
+
+func (e *pkgError) Error() string { return e.msg }
+func (e *pkgError) Unwrap() error { return e.err }
+
+func wrapf(err error, format string, args ...any) error {
+	return &pkgError{msg: "inverse: " + fmt.Sprintf(format, args...) + ": " + strings.TrimPrefix(err.Error(), "inverse: "), err: err}
 }

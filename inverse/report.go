@@ -335,7 +335,7 @@ func deriveQuantities(sp *separable, sv *survey, zref float64, flip []bool, v []
 		o[qAzimuth] = math.Mod(azd, 180)
 		o[qDip] = dip*180/math.Pi + 0 // + 0 turns -0 into 0
 		if nr == 1 {
-			o[qCurrent] = real(cur[l])
+			o[qCurrent] = real(cur[l]) + 0 // + 0 turns -0 into 0
 		} else {
 			o[qCurrent] = cmplx.Abs(cur[l])
 			o[qPhase] = cmplx.Phase(cur[l]) * 180 / math.Pi

@@ -140,7 +140,7 @@ func stepFindings(u []*Placed, d *detection) []Finding {
 		}
 		if last > j {
 			p, q := u[big], u[big+1]
-			f.Message = fmt.Sprintf("%s; most of it (%.3g ± %.2g A) between %s and %s, nearest the station between two steps", msg,
+			f.Message = fmt.Sprintf("%s; most of it (%.3g ± %.2g A) between %s and %s", msg,
 				math.Abs(d.dI[big]), d.s[big], label(p), label(q))
 			f.Values = append(f.Values, Value{Name: "largest part", Value: d.dI[big], Sigma: d.s[big], Unit: "A"})
 		}
