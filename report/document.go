@@ -293,8 +293,8 @@ const (
 
 // Finding is something a crew should act on or know.
 type Finding struct {
-	// Kind is "current-step", "shallow-cover", "poor-fit",
-	// "dipole-anomaly", or another kind a later version adds.
+	// Kind is "current-step", "current-anomaly", "shallow-cover",
+	// "poor-fit", "dipole-anomaly", or another kind a later version adds.
 	Kind string `json:"kind"`
 	// Severity is SeverityWarning, SeverityCaution or SeverityInfo.
 	Severity string `json:"severity"`
