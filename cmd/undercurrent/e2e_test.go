@@ -527,3 +527,111 @@ func TestE2ECalibration(t *testing.T) {
 		}
 	}
 }
+
+// iagaFile locates a real IAGA-2002 file from ../shared/data/iaga2002 as
+// seen from the repository root (the directory holding go.mod), skipping
+// the test when the shared data are absent.
+func iagaFile(t *testing.T, name string) string {
+	t.Helper()
+	dir, err := os.Getwd()
+	if err != nil {
+		t.Fatal(err)
+	}
+	for {
+		if _, err := os.Stat(filepath.Join(dir, "go.mod")); err == nil {
+			break
+		}
+		parent := filepath.Dir(dir)
+		if parent == dir {
+			t.Skip("repository root not found")
+		}
+		dir = parent
+	}
+	path := filepath.Join(dir, "..", "shared", "data", "iaga2002", name)
+	if _, err := os.Stat(path); err != nil {
+		t.Skipf("real IAGA-2002 data not available: %v", err)
+	}
+	return path
+}
+
+// TestE2ERealBaseStation walks the single-line survey slowly on the
+// morning of 2014-11-01 at Boulder, so that the rover sees the real
+// diurnal variation recorded by the Boulder observatory (INTERMAGNET data
+// from the USGS, file bou20141101vmin.min, IAGA-2002 1-minute H D Z). With
+// that file as --base the variation is removed and one fit over all
+// traverses recovers the line; without it the fit is visibly worse.
+func TestE2ERealBaseStation(t *testing.T) {
+	basePath := iagaFile(t, "bou20141101vmin.min")
+	base, err := ingest.ReadSamples(basePath, ingest.WithAllowMissing(true))
+	if err != nil {
+		t.Fatal(err)
+	}
+	sc, _ := scenario(t, "single-line.toml")
+	sc.Start = "2014-11-01T16:30:00Z"
+	sc.Survey.Speed = 0.1 // 80 s per 8 m traverse: about 16 minutes in all
+	sc.Survey.Turn = 60
+	sc.Earth.Drift = [3]float64{}
+	if err := sc.Validate(); err != nil {
+		t.Fatal(err)
+	}
+	s, err := simulate.Simulate(sc)
+	if err != nil {
+		t.Fatal(err)
+	}
+	// Add the observatory's departure from its first value during the
+	// survey, linearly interpolated between minutes, to the rover.
+	col := [3][]float64{base.Bx, base.By, base.Bz}
+	rov := [3][]float64{s.Bx, s.By, s.Bz}
+	i0 := -1
+	lo, hi := [3]float64{math.Inf(1), math.Inf(1), math.Inf(1)}, [3]float64{math.Inf(-1), math.Inf(-1), math.Inf(-1)}
+	j := 0
+	for i, tm := range s.Time {
+		for j+1 < base.Len() && base.Time[j+1] <= tm {
+			j++
+		}
+		if base.Time[j] > tm || j+1 >= base.Len() {
+			t.Fatalf("rover time %v outside the base record", tm)
+		}
+		if i0 < 0 {
+			i0 = j
+		}
+		f := (tm - base.Time[j]) / (base.Time[j+1] - base.Time[j])
+		for k := range 3 {
+			d := col[k][j] + f*(col[k][j+1]-col[k][j]) - col[k][i0]
+			if math.IsNaN(d) {
+				t.Fatalf("missing base value near %v", tm)
+			}
+			rov[k][i] += d
+			lo[k], hi[k] = math.Min(lo[k], d), math.Max(hi[k], d)
+		}
+	}
+	if r := math.Max(hi[0]-lo[0], hi[1]-lo[1]); r < 3 {
+		t.Fatalf("the real variation over the survey is only %.2f nT: choose a livelier hour", r)
+	}
+	dir := t.TempDir()
+	log := filepath.Join(dir, "boulder-morning.csv")
+	if err := ingest.WriteSamples(log, s); err != nil {
+		t.Fatal(err)
+	}
+	decode := func(args ...string) *resultDoc {
+		out := mustCLI(t, append([]string{"locate", "--json", "--count", "1", "--reference-z", "0"}, append(args, log)...)...)
+		var doc resultDoc
+		if err := json.Unmarshal([]byte(out), &doc); err != nil {
+			t.Fatal(err)
+		}
+		if has := strings.Contains(out, `"base_station"`); has != (len(args) > 0) {
+			t.Errorf("base_station in the document: %v, want %v", has, len(args) > 0)
+		}
+		return &doc
+	}
+	corrected := decode("--base", basePath)
+	c := sc.Conductors[0]
+	tru := simulate.Crossing{Point: *c.Point, Dir: [3]float64{math.Sqrt(3) / 2, 0.5, 0}, Current: c.Current, Depth: -c.Point[2]}
+	checkCrossing(t, "base-corrected", corrected.Groups[0].Sources[0], tru, 0, 0)
+	raw := decode()
+	if raw.Groups[0].RMS < 1.1*corrected.Groups[0].RMS {
+		t.Errorf("rms %.3g nT without the base station, %.3g nT with it: the correction does not show", raw.Groups[0].RMS, corrected.Groups[0].RMS)
+	}
+	t.Logf("variation over the survey: east %.2f, north %.2f, up %.2f nT; rms %.3g nT raw, %.3g nT corrected",
+		hi[0]-lo[0], hi[1]-lo[1], hi[2]-lo[2], raw.Groups[0].RMS, corrected.Groups[0].RMS)
+}
