@@ -58,6 +58,9 @@ Examples:
 // it, writes the results beside it, and moves the directory into place.
 func runDemo(ctx context.Context, out string, stdout, progress io.Writer) error {
 	start := time.Now()
+	if err := checkOutDir(out, []string{demoLog}); err != nil {
+		return err
+	}
 	sc, err := simulate.Demo()
 	if err != nil {
 		return err

@@ -178,7 +178,8 @@ separately and builds the profile along the route: current, depth and
 position with chainage measured along the fitted route, and findings for a
 crew: steps in current (current leaving the conductor, bracketed between the
 groups that show it), cover shallower than --min-cover, fits that are poor
-or ambiguous.
+or ambiguous. Groups with the same value in several logs are fitted
+together.
 
 With -o DIR it writes results.json (the result document), results.csv,
 route.geojson and report.html (the crew report) into DIR; the directory is

@@ -343,3 +343,43 @@ func TestProgressQuietOffTerminal(t *testing.T) {
 		t.Error("progress bar on a regular file")
 	}
 }
+
+// TestLocateSeveralLogs splits a survey into two logs: the groups of both
+// are fitted and ordered into one route.
+func TestLocateSeveralLogs(t *testing.T) {
+	sc, _ := scenario(t, "single-line.toml")
+	s, err := simulate.Simulate(sc)
+	if err != nil {
+		t.Fatal(err)
+	}
+	split := 0
+	for split < s.Len() && s.Group[split] < "T04" {
+		split++
+	}
+	dir := t.TempDir()
+	parts := []string{filepath.Join(dir, "morning.csv"), filepath.Join(dir, "afternoon.arrow")}
+	for i, r := range [][2]int{{0, split}, {split, s.Len()}} {
+		p := *s
+		p.Time, p.X, p.Y, p.Z = s.Time[r[0]:r[1]], s.X[r[0]:r[1]], s.Y[r[0]:r[1]], s.Z[r[0]:r[1]]
+		p.Bx, p.By, p.Bz, p.Group = s.Bx[r[0]:r[1]], s.By[r[0]:r[1]], s.Bz[r[0]:r[1]], s.Group[r[0]:r[1]]
+		if err := ingest.WriteSamples(parts[i], &p); err != nil {
+			t.Fatal(err)
+		}
+	}
+	var doc resultDoc
+	// Given in the "wrong" order: the route still runs T01 to T07.
+	out := mustCLI(t, "locate", "--json", "--group-by", "group", parts[1], parts[0])
+	if err := json.Unmarshal([]byte(out), &doc); err != nil {
+		t.Fatal(err)
+	}
+	var keys []string
+	for _, g := range doc.Groups {
+		keys = append(keys, g.Key)
+	}
+	if got := strings.Join(keys, ","); got != "T01,T02,T03,T04,T05,T06,T07" && got != "T07,T06,T05,T04,T03,T02,T01" {
+		t.Errorf("groups in route order: %s", got)
+	}
+	if !strings.Contains(out, "morning.csv") || !strings.Contains(out, "afternoon.arrow") {
+		t.Error("the document does not list both inputs")
+	}
+}
