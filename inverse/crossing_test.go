@@ -38,3 +38,29 @@ func TestCableCrossingPipe(t *testing.T) {
 		within3(t, "azimuth", az, want[i].az, e.AzimuthSigma)
 	}
 }
+
+// TestAICChoice: the AIC criterion also chooses both lines of the crossing, and its
+// values are reported for every count tried.
+func TestAICChoice(t *testing.T) {
+	pts := grid(7, 31, 2.5, 0.6, 0)
+	lines := []Line{
+		{Point: [3]float64{0.4, 0, -0.8}, Dir: [3]float64{0, 1, 0}},
+		{Point: [3]float64{0, -0.5, -1.2}, Dir: [3]float64{1, 0.3, 0}},
+	}
+	f := simulate(pts, lines, []float64{30, 15}, [3]float64{}, 5, rand.New(rand.NewPCG(9, 9)))
+	res, err := FitLines(&Problem{Points: pts, Fields: f, Sigma: 5}, &Settings{Criterion: AIC})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(res.Sources) != 2 || len(res.Criteria) < 3 {
+		t.Fatalf("%d sources, criteria %+v", len(res.Sources), res.Criteria)
+	}
+	for _, c := range res.Criteria {
+		// With Sigma given, AIC = chi2 + 2k exactly.
+		if c.Rejected == "" || c.RSS > 0 {
+			if want := c.RSS/25 + 2*float64(c.Params); math.Abs(c.AIC-want) > 1e-9*want {
+				t.Errorf("K=%d: AIC %v, want chi2 + 2k = %v", c.Count, c.AIC, want)
+			}
+		}
+	}
+}

@@ -103,7 +103,8 @@ const (
 // Settings tune a fit. The zero value (or nil) is usable; each field documents its
 // default.
 type Settings struct {
-	// Count is the number of lines to fit; 0 chooses 1..MaxCount by Criterion.
+	// Count is the number of lines to fit (at most 8); 0 chooses 1..MaxCount by
+	// Criterion.
 	Count int
 	// MaxCount bounds the automatic choice; 0 means 4.
 	MaxCount int
