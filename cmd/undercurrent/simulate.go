@@ -6,6 +6,7 @@ import (
 	"io"
 	"math"
 	"path/filepath"
+	"strconv"
 	"strings"
 
 	"github.com/spf13/pflag"
@@ -135,13 +136,22 @@ func printDetectability(w io.Writer, sc *simulate.Scenario) {
 			what = fmt.Sprintf("peak %g Hz field (RMS)", c.Frequency)
 		}
 		if noise > 0 {
-			fmt.Fprintf(w, "  %s (%s): %s %.4g nT, %.3g times the %.3g nT reading noise\n",
-				name, c.Kind, what, peaks[i], peaks[i]/noise, noise)
+			fmt.Fprintf(w, "  %s (%s): %s %s nT, %s times the %g nT reading noise\n",
+				name, c.Kind, what, plain(peaks[i]), plain(peaks[i]/noise), noise)
 		} else {
-			fmt.Fprintf(w, "  %s (%s): %s %.4g nT (no noise)\n", name, c.Kind, what, peaks[i])
+			fmt.Fprintf(w, "  %s (%s): %s %s nT (no noise)\n", name, c.Kind, what, plain(peaks[i]))
 		}
 		if noise > 0 && peaks[i] < 3*noise && !math.IsNaN(peaks[i]) {
 			fmt.Fprintf(w, "    below 3 times the noise in any one reading: hard to detect without many readings\n")
 		}
 	}
+}
+
+// plain formats a positive number without an exponent: whole numbers from
+// 100 up, three significant digits below.
+func plain(v float64) string {
+	if v >= 100 {
+		return fmt.Sprintf("%.0f", v)
+	}
+	return strconv.FormatFloat(v, 'g', 3, 64)
 }
