@@ -2,6 +2,7 @@ package main
 
 import (
 	"encoding/json"
+	"fmt"
 	"os"
 	"path/filepath"
 	"strings"
@@ -219,7 +220,7 @@ func TestLocateHelp(t *testing.T) {
 // readings): reading the CSV log, fitting each traverse with the automatic
 // choice of the number of conductors, the route analysis and the document.
 func BenchmarkLocateRoute31(b *testing.B) {
-	log := routeLog(b)
+	log := routeLog(b, 5)
 	o := &locateOptions{count: "auto", groupBy: "group", sensorHeight: 0.3, minCover: 0.6}
 	if err := o.check(nil); err != nil {
 		b.Fatal(err)
@@ -232,9 +233,31 @@ func BenchmarkLocateRoute31(b *testing.B) {
 	}
 }
 
+// BenchmarkLocateScaling shows how locate's time grows with the readings
+// per traverse and with the number of conductors tried (--count 1, 2 or
+// auto, which tries 1 to 4), on the same 31-traverse survey.
+func BenchmarkLocateScaling(b *testing.B) {
+	for _, rate := range []float64{5, 10, 20} {
+		log := routeLog(b, rate)
+		for _, count := range []string{"1", "2", "auto"} {
+			b.Run(fmt.Sprintf("readings=%d/count=%s", 31*(int(10*rate)+1), count), func(b *testing.B) {
+				o := &locateOptions{count: count, groupBy: "group"}
+				if err := o.check(nil); err != nil {
+					b.Fatal(err)
+				}
+				for b.Loop() {
+					if _, err := runLocate(b.Context(), o, []string{log}, nil); err != nil {
+						b.Fatal(err)
+					}
+				}
+			})
+		}
+	}
+}
+
 // BenchmarkLocateRoute31Files adds writing the four result files.
 func BenchmarkLocateRoute31Files(b *testing.B) {
-	log := routeLog(b)
+	log := routeLog(b, 5)
 	o := &locateOptions{count: "auto", groupBy: "group", sensorHeight: 0.3, minCover: 0.6}
 	if err := o.check(nil); err != nil {
 		b.Fatal(err)
@@ -252,8 +275,9 @@ func BenchmarkLocateRoute31Files(b *testing.B) {
 	}
 }
 
-// routeLog writes a DC version of the demo survey sampled every 0.2 m.
-func routeLog(b *testing.B) string {
+// routeLog writes a DC version of the demo survey sampled rate times a
+// second at 1 m/s.
+func routeLog(b *testing.B, rate float64) string {
 	b.Helper()
 	sc, err := simulate.Demo()
 	if err != nil {
@@ -262,7 +286,7 @@ func routeLog(b *testing.B) string {
 	for i := range sc.Conductors {
 		sc.Conductors[i].Frequency, sc.Conductors[i].Phase = 0, 0
 	}
-	sc.Sensor.SampleRate = 5
+	sc.Sensor.SampleRate = rate
 	if err := sc.Validate(); err != nil {
 		b.Fatal(err)
 	}
@@ -270,8 +294,8 @@ func routeLog(b *testing.B) string {
 	if err != nil {
 		b.Fatal(err)
 	}
-	if s.Len() != 31*51 {
-		b.Fatalf("%d readings, want 1,581", s.Len())
+	if want := 31 * (int(10*rate) + 1); s.Len() != want {
+		b.Fatalf("%d readings, want %d", s.Len(), want)
 	}
 	log := filepath.Join(b.TempDir(), "route.csv")
 	if err := ingest.WriteSamples(log, s); err != nil {
