@@ -68,9 +68,12 @@ type findingRow struct {
 	Values   string
 }
 
+// groupRow is one line of the table of groups; the per-source columns hold
+// one entry per source, shown one under the other.
 type groupRow struct {
-	Key, Chainage, Current, Phase, Depth, Cover, Azimuth, RMS, Points, Status string
-	Bad                                                                       bool
+	Key, Chainage, RMS, Points, Status    string
+	Current, Phase, Depth, Cover, Azimuth []string
+	Bad                                   bool
 }
 
 func newView(d *Document) (*view, error) {
@@ -220,8 +223,7 @@ func (v *view) groupRow(g *Group) groupRow {
 			az = append(az, fmt.Sprintf("%.1f ± %.1f", s.Azimuth, s.AzimuthSigma))
 		}
 	}
-	r.Current, r.Phase = strings.Join(cur, "; "), strings.Join(ph, "; ")
-	r.Depth, r.Cover, r.Azimuth = strings.Join(dep, "; "), strings.Join(cov, "; "), strings.Join(az, "; ")
+	r.Current, r.Phase, r.Depth, r.Cover, r.Azimuth = cur, ph, dep, cov, az
 	return r
 }
 

@@ -154,11 +154,12 @@ func planPlot(d *Document) (*plot.Plot, error) {
 	if s != nil {
 		p.Legend.Add("readings", s)
 	}
-	// Conductors over the stretch each group's readings see, drawn at
-	// least a quarter of the survey's extent long so that a conductor
-	// crossing a single traverse shows.
+	// Conductors over the stretch each group's readings see. Without a
+	// route they are drawn at least a quarter of the survey's extent long,
+	// so that a conductor crossing a single traverse shows; along a route
+	// the route itself shows the way and long strokes would clutter it.
 	minHalf := 1.0
-	if len(sx) > 0 {
+	if len(sx) > 0 && (d.Route == nil || len(d.Route.Stations) < 2) {
 		ext := math.Hypot(maxOf(sx)-minOf(sx), maxOf(sy)-minOf(sy))
 		minHalf = math.Max(minHalf, ext/8)
 	}

@@ -45,6 +45,9 @@ dl { display: grid; grid-template-columns: 14rem 1fr; gap: .25rem 1rem; margin: 
 dt { font-weight: 600; }
 dd { margin: 0; }
 code { font-size: .85em; word-break: break-all; }
+.wide { overflow-x: auto; }
+table.groups { font-size: .85rem; }
+table.groups th, table.groups td { padding: .25rem .35rem; }
 footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rule); color: var(--muted); font-size: .8rem; }
 @page { size: A4; margin: 14mm 12mm; }
 @media print {
@@ -52,6 +55,8 @@ footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rul
   h2 { break-after: avoid; page-break-after: avoid; }
   table, .cautions { break-inside: auto; }
   tr { break-inside: avoid; page-break-inside: avoid; }
+  .wide { overflow: visible; }
+  table.groups { font-size: 8pt; }
 }
 </style>
 </head>
@@ -110,13 +115,13 @@ footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rul
 
 <section>
 <h2>Every group</h2>
-<table>
+<div class="wide"><table class="groups">
 <thead><tr><th>Group</th><th>Chainage (m)</th><th>Current (A)</th>{{if eq .D.Signal.Mode "ac"}}<th>Phase (°)</th>{{end}}<th>Depth (m)</th><th>Cover (m)</th><th>Azimuth (°)</th><th>RMS (nT)</th><th>Readings</th><th>Fit</th></tr></thead>
 <tbody>
-{{$ac := eq .D.Signal.Mode "ac"}}{{range .Groups}}<tr{{if .Bad}} class="bad"{{end}}><td>{{.Key}}</td><td class="num">{{.Chainage}}</td><td class="num">{{.Current}}</td>{{if $ac}}<td class="num">{{.Phase}}</td>{{end}}<td class="num">{{.Depth}}</td><td class="num">{{.Cover}}</td><td class="num">{{.Azimuth}}</td><td class="num">{{.RMS}}</td><td class="num">{{.Points}}</td><td>{{.Status}}</td></tr>
+{{$ac := eq .D.Signal.Mode "ac"}}{{range .Groups}}<tr{{if .Bad}} class="bad"{{end}}><td>{{.Key}}</td><td class="num">{{.Chainage}}</td><td class="num">{{range $i, $v := .Current}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{if $ac}}<td class="num">{{range $i, $v := .Phase}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{end}}<td class="num">{{range $i, $v := .Depth}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td><td class="num">{{range $i, $v := .Cover}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td><td class="num">{{range $i, $v := .Azimuth}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td><td class="num">{{.RMS}}</td><td class="num">{{.Points}}</td><td>{{.Status}}</td></tr>
 {{end}}</tbody>
-</table>
-<p class="values">Uncertainties are one standard deviation. Depth is {{.DepthRef}}.</p>
+</table></div>
+<p class="values">One line per fitted conductor, strongest first. Uncertainties are one standard deviation. Depth is {{.DepthRef}}.</p>
 {{if .FitNotes}}<h3>Notes from the fits</h3>
 <ul class="values">
 {{range .FitNotes}}<li>{{.}}</li>
