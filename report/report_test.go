@@ -306,3 +306,21 @@ func TestCollapseNumberArrays(t *testing.T) {
 		}
 	}
 }
+
+// SHA-256 of "abc": FIPS 180-2, appendix B.1.
+func TestNewInput(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "abc.csv")
+	if err := os.WriteFile(path, []byte("abc"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	in, err := NewInput("survey", path, 3)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if want := "ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad"; in.SHA256 != want || in.Rows != 3 || in.Role != "survey" {
+		t.Errorf("input %+v, want sha256 %s", in, want)
+	}
+	if _, err := NewInput("survey", filepath.Join(t.TempDir(), "missing.csv"), 0); err == nil || !strings.HasPrefix(err.Error(), "report: ") {
+		t.Errorf("missing file: %v", err)
+	}
+}
