@@ -18,14 +18,20 @@
 //
 // Every writer validates the document first (Document.Validate) and writes
 // nothing when it is invalid, so a NaN never reaches a file. The writers
-// take an io.Writer; the caller makes files atomic (write to a temporary
-// name, then rename).
+// take an io.Writer; WriteFiles renders all four in memory and then writes
+// results.json, results.csv, route.geojson and report.html atomically into
+// a directory, leaving no partial output directory on failure.
+//
+// Build makes a Document from per-group inverse fits (Fit: the readings,
+// the inverse.Result or the error) and runs the along-route analysis;
+// callers supply what Build cannot know (tool, inputs with NewInput,
+// corrections, frame origin, signal, settings) in the head document.
 //
 // # Conventions
 //
 // Positions are metres in a local east, north, up frame (Frame), with an
-// optional WGS84 origin. Local positions are converted to WGS84 through the
-// ellipsoid (NIMA TR8350.2: a = 6378137 m, 1/f = 298.257223563): ENU to
+// optional WGS84 origin. Local positions are converted to WGS84 by
+// ingest.Geodetic.FromENU, through the ellipsoid (NIMA TR8350.2: a = 6378137 m, 1/f = 298.257223563): ENU to
 // Earth-centred Earth-fixed about the origin, then ECEF to geodetic
 // latitude by fixed-point iteration on
 //
