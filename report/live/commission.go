@@ -122,6 +122,11 @@ func (w *assetWorker) commission(win *Window) error {
 		}
 		return nil
 	}
+	if len(conds) == len(w.asset.Conductors) {
+		for i := range conds {
+			conds[i].Name = w.asset.Conductors[i].Name
+		}
+	}
 	g := storedGeometry{Conductors: conds, From: w.pending[0].Start, To: win.End, Worker: w.svc.id}
 	data, _ := json.Marshal(g)
 	ctx, cancel := context.WithTimeout(context.Background(), 10e9)
