@@ -3,6 +3,7 @@ package main
 import (
 	"encoding/json"
 	"fmt"
+	"math"
 	"os"
 	"path/filepath"
 	"strings"
@@ -405,5 +406,46 @@ func TestLocateSeveralLogs(t *testing.T) {
 	}
 	if !strings.Contains(out, "morning.csv") || !strings.Contains(out, "afternoon.arrow") {
 		t.Error("the document does not list both inputs")
+	}
+}
+
+// TestLocateColumnsAndUnits reads a log whose east column has another name
+// and whose field is in microtesla, through --column and --unit: the fit is
+// the same as from the canonical log.
+func TestLocateColumnsAndUnits(t *testing.T) {
+	sc, _ := scenario(t, "single-line.toml")
+	s, err := simulate.Simulate(sc)
+	if err != nil {
+		t.Fatal(err)
+	}
+	dir := t.TempDir()
+	canon := filepath.Join(dir, "canon.csv")
+	if err := ingest.WriteSamples(canon, s); err != nil {
+		t.Fatal(err)
+	}
+	var b strings.Builder
+	b.WriteString("t,easting,y,z,bx,by,bz,group\n")
+	for i := range s.Len() {
+		fmt.Fprintf(&b, "%.17g,%.17g,%.17g,%.17g,%.17g,%.17g,%.17g,%s\n", s.Time[i], s.X[i], s.Y[i], s.Z[i], s.Bx[i]/1000, s.By[i]/1000, s.Bz[i]/1000, s.Group[i])
+	}
+	other := filepath.Join(dir, "other.csv")
+	if err := os.WriteFile(other, []byte(b.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	decode := func(args ...string) resultDoc {
+		var doc resultDoc
+		if err := json.Unmarshal([]byte(mustCLI(t, append([]string{"locate", "--json", "--group-by", "group"}, args...)...)), &doc); err != nil {
+			t.Fatal(err)
+		}
+		return doc
+	}
+	want := decode(canon)
+	got := decode("--column", "time=t", "--column", "x=easting", "--unit", "bx=uT,by=uT,bz=uT", other)
+	for i, g := range got.Groups {
+		a, w := g.Sources[0], want.Groups[i].Sources[0]
+		// The same readings to within the rounding of nT -> uT -> nT.
+		if math.Abs(a.Current-w.Current) > 1e-6*math.Abs(w.Current) || math.Abs(a.Depth-w.Depth) > 1e-6 {
+			t.Errorf("%s: %.9g A at %.9g m, want %.9g A at %.9g m", g.Key, a.Current, a.Depth, w.Current, w.Depth)
+		}
 	}
 }
