@@ -1,10 +1,7 @@
 package main
 
 import (
-	"bufio"
 	"context"
-	"crypto/sha256"
-	"encoding/hex"
 	"errors"
 	"fmt"
 	"io"
@@ -62,7 +59,7 @@ type locateOptions struct {
 }
 
 // resultFiles are the files locate writes into its output directory.
-var resultFiles = []string{"results.json", "results.csv", "route.geojson", "report.html"}
+var resultFiles = []string{report.FileJSON, report.FileCSV, report.FileGeoJSON, report.FileHTML}
 
 func (o *locateOptions) setFlags(fs *pflag.FlagSet) {
 	fs.StringVar(&o.calibration, "calibration", "", "apply the sensor calibration in `CAL.json` (from undercurrent calibrate)")
@@ -548,15 +545,12 @@ func baseSummary(path string, r *calibrate.BaseReport) string {
 	return s
 }
 
-// fileInput describes an input file with its SHA-256.
+// fileInput describes an input file with its SHA-256 (left out when the
+// file cannot be read again).
 func fileInput(role, path string, rows int) report.Input {
-	in := report.Input{Role: role, Path: path, Rows: rows}
-	if f, err := os.Open(path); err == nil {
-		h := sha256.New()
-		if _, err := io.Copy(h, f); err == nil {
-			in.SHA256 = hex.EncodeToString(h.Sum(nil))
-		}
-		f.Close()
+	in, err := report.NewInput(role, path, rows)
+	if err != nil {
+		return report.Input{Role: role, Path: path, Rows: rows}
 	}
 	return in
 }
@@ -716,37 +710,7 @@ func stageDir(dir string, keep []string, fill func(tmp string) error) (err error
 
 // writeDocFiles writes the four result files into dir.
 func writeDocFiles(dir string, doc *report.Document) error {
-	writers := map[string]func(io.Writer, *report.Document) error{
-		"results.json":  report.WriteJSON,
-		"results.csv":   report.WriteCSV,
-		"route.geojson": report.WriteGeoJSON,
-		"report.html":   report.WriteHTML,
-	}
-	for _, name := range resultFiles {
-		if err := writeFile(filepath.Join(dir, name), func(w io.Writer) error { return writers[name](w, doc) }); err != nil {
-			return fmt.Errorf("writing %s: %w", name, err)
-		}
-	}
-	return nil
-}
-
-// writeFile creates path and writes it with write, reporting a failed
-// close (a full disk shows there).
-func writeFile(path string, write func(io.Writer) error) error {
-	f, err := os.Create(path)
-	if err != nil {
-		return err
-	}
-	bw := bufio.NewWriterSize(f, 1<<16)
-	if err := write(bw); err != nil {
-		f.Close()
-		return err
-	}
-	if err := bw.Flush(); err != nil {
-		f.Close()
-		return err
-	}
-	return f.Close()
+	return report.WriteFiles(dir, doc)
 }
 
 // writeResults writes the result directory of a locate run.
