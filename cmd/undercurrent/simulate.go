@@ -1,6 +1,7 @@
 package main
 
 import (
+	"bufio"
 	"context"
 	"fmt"
 	"io"
@@ -17,8 +18,8 @@ import (
 
 func init() {
 	var (
-		out, baseOut string
-		seed         int64
+		out, baseOut, truthOut string
+		seed                   int64
 	)
 	register(&command{
 		name:    "simulate",
@@ -39,10 +40,11 @@ sensor noise.
 Examples:
   undercurrent simulate testdata/demo/fenwick-lane.toml -o fenwick-lane.csv
   undercurrent simulate testdata/scenarios/kestrel-moor-step.toml -o kestrel.parquet --base-log base.csv
-  undercurrent simulate --seed 7 testdata/scenarios/single-line.toml -o line.arrow`,
+  undercurrent simulate --seed 7 testdata/scenarios/single-line.toml -o line.arrow --truth line-truth.csv`,
 		setFlags: func(fs *pflag.FlagSet) {
 			fs.StringVarP(&out, "output", "o", "", "write the log to `LOG` (.csv, .arrow, .arrows or .parquet)")
 			fs.StringVar(&baseOut, "base-log", "", "also write the scenario's base-station log to `FILE`")
+			fs.StringVar(&truthOut, "truth", "", "also write where each survey line crosses each conductor (position, depth, current) to CSV `FILE`, to compare with locate's results")
 			fs.Int64Var(&seed, "seed", 0, "override the scenario's random seed")
 		},
 		run: func(ctx context.Context, fs *pflag.FlagSet, args []string, stdout, stderr io.Writer) error {
@@ -88,6 +90,12 @@ Examples:
 					return err
 				}
 				fmt.Fprintf(stdout, "wrote %s: %d base-station readings\n", baseOut, b.Len())
+			}
+			if truthOut != "" {
+				if err := writeTruth(truthOut, sc); err != nil {
+					return err
+				}
+				fmt.Fprintf(stdout, "wrote %s: %d crossings of survey lines over conductors\n", truthOut, len(sc.Crossings()))
 			}
 			printDetectability(stdout, sc)
 			return nil
@@ -154,4 +162,20 @@ func plain(v float64) string {
 		return fmt.Sprintf("%.0f", v)
 	}
 	return strconv.FormatFloat(v, 'g', 3, 64)
+}
+
+// writeTruth writes the scenario's crossings as CSV: what locate should
+// find under each survey line.
+func writeTruth(path string, sc *simulate.Scenario) error {
+	return ingest.WriteFileAtomic(path, func(w io.Writer) error {
+		bw := bufio.NewWriter(w)
+		fmt.Fprintln(bw, "line,conductor,name,east_m,north_m,up_m,depth_m,dir_east,dir_north,dir_up,current_a,frequency_hz,phase_deg,along_m")
+		for _, c := range sc.Crossings() {
+			name := strings.NewReplacer(",", " ", "\n", " ", "\"", "'").Replace(sc.Conductors[c.Conductor].Name)
+			fmt.Fprintf(bw, "%s,%d,%s,%.4f,%.4f,%.4f,%.4f,%.6f,%.6f,%.6f,%g,%g,%g,%.4f\n",
+				c.Line, c.Conductor+1, name, c.Point[0], c.Point[1], c.Point[2], c.Depth,
+				c.Dir[0], c.Dir[1], c.Dir[2], c.Current, c.Frequency, c.Phase, c.Along)
+		}
+		return bw.Flush()
+	})
 }

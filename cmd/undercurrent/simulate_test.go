@@ -55,7 +55,18 @@ func TestSimulateBaseAndSeed(t *testing.T) {
 	if !strings.Contains(out, "base-station readings") {
 		t.Errorf("output:\n%s", out)
 	}
-	mustCLI(t, "simulate", "--seed", "12345", path, "-o", b)
+	truth := filepath.Join(dir, "truth.csv")
+	mustCLI(t, "simulate", "--seed", "12345", path, "-o", b, "--truth", truth)
+	// Seven traverses over one line: a header and seven rows, each 1.1 m
+	// deep carrying 25 A (the scenario's values).
+	data, err := os.ReadFile(truth)
+	if err != nil {
+		t.Fatal(err)
+	}
+	rows := strings.Split(strings.TrimSpace(string(data)), "\n")
+	if len(rows) != 8 || !strings.HasPrefix(rows[1], "T01,1,earthing conductor,") || !strings.Contains(rows[7], ",1.1000,") || !strings.Contains(rows[7], ",25,0,0,") {
+		t.Errorf("truth file:\n%s", data)
+	}
 	sa, err := ingest.ReadSamples(a)
 	if err != nil {
 		t.Fatal(err)
