@@ -5,7 +5,10 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"runtime"
 	"strconv"
+	"sync"
+	"sync/atomic"
 
 	"undercurrent/ingest"
 	"undercurrent/inverse"
@@ -61,36 +64,61 @@ func (c *Conductor) segmentCurrents() []float64 {
 	return cur
 }
 
-// walk calls visit for every planned reading in time order with its survey
-// line index, time (Unix s) and position (m ENU), and returns the time of
+// span is where one survey line's readings sit in the log: rows
+// [start, start+n), the first at time t0.
+type span struct {
+	start, n int
+	t0       float64
+}
+
+// spans lays the survey lines out in time and rows, and returns the time of
 // the last reading.
-func (sc *Scenario) walk(visit func(line int, t float64, r [3]float64)) float64 {
+func (sc *Scenario) spans() ([]span, float64) {
 	speed, rate := sc.speed(), sc.rate()
 	ds := speed / rate
-	t0, last := sc.start, math.Inf(-1)
+	out := make([]span, len(sc.lines))
+	t0, last, row := sc.start, math.Inf(-1), 0
 	for i, l := range sc.lines {
 		n := l.samples(ds)
-		length := l.Length()
-		for k := 0; k < n; k++ {
-			d := float64(k) * ds
-			f := 0.0
-			if length > 0 {
-				f = d / length
-			}
-			r := [3]float64{
-				l.From[0] + f*(l.To[0]-l.From[0]),
-				l.From[1] + f*(l.To[1]-l.From[1]),
-				sc.Sensor.Height,
-			}
-			last = t0 + float64(k)/rate
-			if visit != nil {
-				visit(i, last, r)
-			}
-		}
+		out[i] = span{start: row, n: n, t0: t0}
+		row += n
+		last = t0 + float64(n-1)/rate
 		// Keep time strictly increasing even with no pause between lines.
-		t0 = math.Max(t0+length/speed+sc.Survey.Turn, last+1/rate)
+		t0 = math.Max(t0+l.Length()/speed+sc.Survey.Turn, last+1/rate)
 	}
-	return last
+	return out, last
+}
+
+// reading returns the time and position of reading k of survey line i.
+func (sc *Scenario) reading(i int, sp span, k int) (float64, [3]float64) {
+	l := sc.lines[i]
+	rate := sc.rate()
+	d := float64(k) * sc.speed() / rate
+	f := 0.0
+	if length := l.Length(); length > 0 {
+		f = d / length
+	}
+	return sp.t0 + float64(k)/rate, [3]float64{
+		l.From[0] + f*(l.To[0]-l.From[0]),
+		l.From[1] + f*(l.To[1]-l.From[1]),
+		sc.Sensor.Height,
+	}
+}
+
+// eachLine calls do for every survey line, spread over the CPUs.
+func eachLine(n int, do func(i int)) {
+	var next atomic.Int64
+	var wg sync.WaitGroup
+	for range min(runtime.GOMAXPROCS(0), n) {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for i := int(next.Add(1)) - 1; i < n; i = int(next.Add(1)) - 1 {
+				do(i)
+			}
+		}()
+	}
+	wg.Wait()
 }
 
 // Rows is the number of readings Simulate produces.
@@ -113,42 +141,52 @@ func Simulate(sc *Scenario) (*ingest.Samples, error) {
 	if sc == nil || sc.lines == nil {
 		return nil, errors.New("simulate: scenario not checked: use Load, Parse or Validate first")
 	}
+	spans, _ := sc.spans()
 	n := sc.Rows()
 	s := &ingest.Samples{
 		Source: sc.Source,
-		Time:   make([]float64, 0, n),
-		X:      make([]float64, 0, n), Y: make([]float64, 0, n), Z: make([]float64, 0, n),
-		Bx: make([]float64, 0, n), By: make([]float64, 0, n), Bz: make([]float64, 0, n),
-		Group: make([]string, 0, n),
+		Time:   make([]float64, n),
+		X:      make([]float64, n), Y: make([]float64, n), Z: make([]float64, n),
+		Bx: make([]float64, n), By: make([]float64, n), Bz: make([]float64, n),
+		Group: make([]string, n),
 		Frame: ingest.FrameENU,
 		Meta:  sc.meta(),
 	}
 	if o := sc.Origin; o != nil {
 		s.Origin = &ingest.Geodetic{Lat: o.Lat, Lon: o.Lon, H: o.Height}
 	}
-	rng := rand.New(rand.NewPCG(uint64(sc.Seed), 0x5eed_f0e1))
 	srcs := sc.sources()
 	sen := sc.Sensor
-	sc.walk(func(line int, t float64, r [3]float64) {
-		b := sc.earth(t)
-		for _, src := range srcs {
-			f := src.field(r)
-			w := 1.0
-			if src.ac {
-				w = math.Sqrt2 * math.Cos(cycles(src.freq, t)*2*math.Pi+src.phase)
+	// Each line has its own noise stream, seeded from the scenario's seed
+	// and the line's index, so that lines can be simulated in parallel and
+	// the log is still the same on every run.
+	eachLine(len(spans), func(li int) {
+		sp := spans[li]
+		rng := rand.New(rand.NewPCG(uint64(sc.Seed), 0x5eed_f0e1^uint64(li)))
+		key := sc.lines[li].Key
+		for k := range sp.n {
+			t, r := sc.reading(li, sp, k)
+			b := sc.earth(t)
+			for _, src := range srcs {
+				f := src.field(r)
+				w := 1.0
+				if src.ac {
+					w = math.Sqrt2 * math.Cos(cycles(src.freq, t)*2*math.Pi+src.phase)
+				}
+				b = [3]float64{b[0] + w*f[0], b[1] + w*f[1], b[2] + w*f[2]}
 			}
-			b = [3]float64{b[0] + w*f[0], b[1] + w*f[1], b[2] + w*f[2]}
-		}
-		if sen.Noise > 0 {
-			for i := range b {
-				b[i] += sen.Noise * rng.NormFloat64()
+			if sen.Noise > 0 {
+				for i := range b {
+					b[i] += sen.Noise * rng.NormFloat64()
+				}
 			}
+			b = sen.distort(b)
+			j := sp.start + k
+			s.Time[j] = t
+			s.X[j], s.Y[j], s.Z[j] = r[0], r[1], r[2]
+			s.Bx[j], s.By[j], s.Bz[j] = b[0], b[1], b[2]
+			s.Group[j] = key
 		}
-		b = sen.distort(b)
-		s.Time = append(s.Time, t)
-		s.X, s.Y, s.Z = append(s.X, r[0]), append(s.Y, r[1]), append(s.Z, r[2])
-		s.Bx, s.By, s.Bz = append(s.Bx, b[0]), append(s.By, b[1]), append(s.Bz, b[2])
-		s.Group = append(s.Group, sc.lines[line].Key)
 	})
 	return s, nil
 }
@@ -172,7 +210,8 @@ func SimulateBase(sc *Scenario) (*ingest.Samples, error) {
 	if margin == 0 {
 		margin = 60
 	}
-	end := sc.walk(nil) + margin
+	_, last := sc.spans()
+	end := last + margin
 	t0 := sc.start - margin
 	n := int(math.Floor((end-t0)*rate)) + 1
 	if n > MaxRows {
@@ -252,13 +291,25 @@ func (sc *Scenario) meta() map[string]string {
 // noise, a first answer to "will this be detectable?".
 func (sc *Scenario) PeakFields() []float64 {
 	srcs := sc.sources()
-	peak := make([]float64, len(srcs))
-	sc.walk(func(_ int, _ float64, r [3]float64) {
-		for i, src := range srcs {
-			peak[i] = math.Max(peak[i], norm(src.field(r)))
+	spans, _ := sc.spans()
+	peaks := make([][]float64, len(spans))
+	eachLine(len(spans), func(li int) {
+		peak := make([]float64, len(srcs))
+		for k := range spans[li].n {
+			_, r := sc.reading(li, spans[li], k)
+			for i, src := range srcs {
+				peak[i] = math.Max(peak[i], norm(src.field(r)))
+			}
 		}
+		peaks[li] = peak
 	})
-	return peak
+	out := make([]float64, len(srcs))
+	for _, p := range peaks {
+		for i := range out {
+			out[i] = math.Max(out[i], p[i])
+		}
+	}
+	return out
 }
 
 func scale(v [3]float64, k float64) [3]float64 { return [3]float64{v[0] * k, v[1] * k, v[2] * k} }
