@@ -30,6 +30,9 @@ type csvReader struct {
 	ws      bool
 	ncols   int
 	used    []usedCol
+	ops     []int // per source column: canonical index, opSkip or opGroup
+	opScale []float64
+	fast    bool  // lines may take fastLine
 	pending chan chan csvResult
 	jobs    chan csvJob
 	done    chan struct{}
@@ -39,6 +42,11 @@ type csvReader struct {
 	err     error
 	last    float64
 }
+
+const (
+	opSkip  = -1
+	opGroup = -2
+)
 
 type usedCol struct {
 	c     int
@@ -137,6 +145,19 @@ func newCSVReader(name string, rd io.Reader, cfg *config) (*csvReader, error) {
 			r.used = append(r.used, usedCol{c: c, src: pl.src[c], scale: pl.scale[c]})
 		}
 	}
+	r.ops = make([]int, r.ncols)
+	r.opScale = make([]float64, r.ncols)
+	for i := range r.ops {
+		r.ops[i] = opSkip
+	}
+	for _, u := range r.used {
+		if u.c == cGroup {
+			r.ops[u.src] = opGroup
+		} else {
+			r.ops[u.src], r.opScale[u.src] = u.c, u.scale
+		}
+	}
+	r.fast = !r.ws && r.delim != '"' && !cfg.slowOnly
 	startLine := lineNo + 1
 	if pl.geodetic && pl.origin == nil {
 		// The origin is the first reading: parse ahead to it.
@@ -283,6 +304,24 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch) error {
 	pl, cfg := r.pl, r.cfg
 	comment := []byte(cfg.comment)
 	var fields [][]byte
+	need := rb.n + bytes.Count(data, []byte{'\n'}) + 1
+	for _, u := range r.used {
+		if u.c != cGroup {
+			rb.f[u.c] = growTo(rb.f[u.c], need)
+		}
+	}
+	if cap(rb.line) < need {
+		rb.line = append(rb.line[:cap(rb.line)], make([]int, need-cap(rb.line))...)
+	}
+	rb.line = rb.line[:need]
+	defer func() {
+		for _, u := range r.used {
+			if u.c != cGroup {
+				rb.f[u.c] = rb.f[u.c][:rb.n]
+			}
+		}
+		rb.line = rb.line[:rb.n]
+	}()
 	line--
 	for len(data) > 0 {
 		var ln []byte
@@ -303,6 +342,11 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch) error {
 			if len(t) == 0 || (len(comment) > 0 && bytes.HasPrefix(t, comment)) {
 				continue
 			}
+		}
+		if r.fast && r.fastLine(ln, rb) {
+			rb.line[rb.n] = line
+			rb.n++
+			continue
 		}
 		fields = splitFields(ln, r.delim, r.ws, fields[:0])
 		if len(fields) != r.ncols {
@@ -350,12 +394,64 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch) error {
 			if scale != 1 {
 				v *= scale
 			}
-			rb.f[u.c] = append(rb.f[u.c], v)
+			rb.f[u.c][rb.n] = v
 		}
-		rb.line = append(rb.line, line)
+		rb.line[rb.n] = line
 		rb.n++
 	}
 	return nil
+}
+
+// fastLine parses a plain line (no quotes, no blanks around numbers, plain
+// decimals) in one pass, the number parser finding the end of each field.
+// It appends nothing and returns false when the line needs the general path
+// (which also produces the error messages).
+func (r *csvReader) fastLine(ln []byte, rb *rawBatch) bool {
+	p, n, d, row := 0, len(ln), r.delim, rb.n
+	var group []byte
+	hasGroup := false
+	for k, op := range r.ops {
+		if p > n {
+			return false // short row
+		}
+		if op < 0 {
+			j := bytes.IndexByte(ln[p:], d)
+			end := n
+			if j >= 0 {
+				end = p + j
+			}
+			if op == opGroup {
+				f := ln[p:end]
+				if len(f) > 0 && (f[0] == '"' || f[0] == ' ' || f[0] == '\t' || f[len(f)-1] == ' ' || f[len(f)-1] == '\t') {
+					return false
+				}
+				group, hasGroup = f, true
+			}
+			p = end + 1
+			continue
+		}
+		v, end, ok := parseFastAt(ln, p)
+		if !ok || (end < n && ln[end] != d) {
+			return false
+		}
+		rb.f[op][row] = v * r.opScale[k] // exact when the scale is 1
+		p = end + 1
+	}
+	if p < n {
+		return false // long row, or a trailing delimiter the general path judges
+	}
+	if hasGroup {
+		rb.group = append(rb.group, string(group))
+	}
+	return true
+}
+
+// growTo returns s with length n, reusing its array when it is big enough.
+func growTo(s []float64, n int) []float64 {
+	if cap(s) < n {
+		return make([]float64, n, n+n/4)
+	}
+	return s[:n]
 }
 
 func (r *csvReader) start(carry []byte, line int) {
@@ -476,11 +572,6 @@ func (r *csvReader) work() {
 func (r *csvReader) parseJob(j csvJob, rb *rawBatch) csvResult {
 	pl := r.pl
 	rb.reset(pl)
-	for _, u := range r.used {
-		if cap(rb.f[u.c]) < j.lines+1 {
-			rb.f[u.c] = make([]float64, 0, j.lines+1)
-		}
-	}
 	if err := r.parseChunk(j.data, j.line, rb); err != nil {
 		return csvResult{err: err}
 	}

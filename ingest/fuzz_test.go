@@ -2,8 +2,11 @@ package ingest
 
 import (
 	"bytes"
+	"math"
+	"strings"
 	"testing"
 
+	"github.com/apache/arrow-go/v18/arrow/array"
 	"github.com/apache/arrow-go/v18/arrow/memory"
 )
 
@@ -19,41 +22,69 @@ func FuzzCSV(f *testing.F) {
 	f.Add([]byte("time,lat,lon,height,bx,by,bz\n0,52.6,0.1,4,1,2,3\n"), uint8(2))
 	f.Add([]byte("time bx by bz\n2024-01-01T00:00:00Z 1 2 3\n"), uint8(3))
 	f.Fuzz(func(t *testing.T, data []byte, mode uint8) {
-		mem := memory.NewCheckedAllocator(memory.NewGoAllocator())
-		defer mem.AssertSize(t, 0)
-		opts := []Option{WithAllocator(mem), withChunkBytes(int(mode%32) + 1), WithWorkers(2)}
-		if mode&32 != 0 {
-			opts = append(opts, WithAllowMissing(true), WithAllowBackwards(true))
+		fast, fastErr := fuzzReadCSV(t, data, mode)
+		slow, slowErr := fuzzReadCSV(t, data, mode, withSlowPathOnly())
+		if fastErr != slowErr {
+			t.Fatalf("fast path error %q, general path error %q", fastErr, slowErr)
 		}
-		if mode&64 != 0 {
-			opts = append(opts, WithFrame(FrameNED))
+		if len(fast) != len(slow) {
+			t.Fatalf("fast path %d values, general path %d", len(fast), len(slow))
 		}
-		cfg := newConfig(opts)
-		r, err := newCSVReader("fuzz.csv", bytes.NewReader(data), cfg)
-		if err != nil {
-			return
-		}
-		defer r.Release()
-		last := -1e308
-		for r.Next() {
-			rec := r.RecordBatch()
-			if rec.NumRows() == 0 {
-				t.Fatal("empty batch")
+		for i := range fast {
+			if math.Float64bits(fast[i]) != math.Float64bits(slow[i]) {
+				t.Fatalf("value %d: fast path %v, general path %v", i, fast[i], slow[i])
 			}
-			if mode&32 != 0 {
-				continue
-			}
-			for _, v := range floatCol(rec, 0) {
-				if v < last || v != v {
-					t.Fatalf("time %v after %v accepted", v, last)
-				}
-				last = v
-			}
-		}
-		if r.Err() != nil && r.Err().Error()[:8] != "ingest: " {
-			t.Fatalf("error without prefix: %v", r.Err())
 		}
 	})
+}
+
+// fuzzReadCSV reads data and returns every float value read (column by
+// column, batch by batch) and the error text.
+func fuzzReadCSV(t *testing.T, data []byte, mode uint8, extra ...Option) ([]float64, string) {
+	mem := memory.NewCheckedAllocator(memory.NewGoAllocator())
+	defer mem.AssertSize(t, 0)
+	opts := append([]Option{WithAllocator(mem), withChunkBytes(int(mode%32) + 1), WithWorkers(2)}, extra...)
+	if mode&32 != 0 {
+		opts = append(opts, WithAllowMissing(true), WithAllowBackwards(true))
+	}
+	if mode&64 != 0 {
+		opts = append(opts, WithFrame(FrameNED))
+	}
+	cfg := newConfig(opts)
+	r, err := newCSVReader("fuzz.csv", bytes.NewReader(data), cfg)
+	if err != nil {
+		return nil, err.Error()
+	}
+	defer r.Release()
+	var out []float64
+	last := -1e308
+	for r.Next() {
+		rec := r.RecordBatch()
+		if rec.NumRows() == 0 {
+			t.Fatal("empty batch")
+		}
+		for i := 0; i < int(rec.NumCols()); i++ {
+			if a, ok := rec.Column(i).(*array.Float64); ok {
+				out = append(out, a.Float64Values()...)
+			}
+		}
+		if mode&32 != 0 {
+			continue
+		}
+		for _, v := range floatCol(rec, 0) {
+			if v < last || v != v {
+				t.Fatalf("time %v after %v accepted", v, last)
+			}
+			last = v
+		}
+	}
+	if err := r.Err(); err != nil {
+		if !strings.HasPrefix(err.Error(), "ingest: ") {
+			t.Fatalf("error without prefix: %v", err)
+		}
+		return out, err.Error()
+	}
+	return out, ""
 }
 
 // FuzzIAGA feeds arbitrary bytes to the IAGA-2002 reader.

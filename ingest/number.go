@@ -2,7 +2,6 @@ package ingest
 
 import (
 	"bytes"
-	"math"
 	"strconv"
 	"time"
 )
@@ -35,63 +34,57 @@ func parseNumber(b []byte) (float64, bool) {
 }
 
 func parseFast(b []byte) (float64, bool) {
-	i, n := 0, len(b)
-	if n == 0 {
-		return 0, false
-	}
+	v, end, ok := parseFastAt(b, 0)
+	return v, ok && end == len(b)
+}
+
+// parseFastAt parses the number that starts at b[i] and stops at the first
+// byte that cannot continue it, returning that position. ok is false when
+// there is no number there or it needs the slow path (more than 19 digits,
+// a mantissa above 2^53 or an exponent beyond +-22, where one rounding
+// step is no longer exact).
+func parseFastAt(b []byte, i int) (v float64, end int, ok bool) {
+	n := len(b)
 	neg := false
-	if b[0] == '-' || b[0] == '+' {
-		neg = b[0] == '-'
+	if i < n && (b[i] == '-' || b[i] == '+') {
+		neg = b[i] == '-'
 		i++
 	}
 	var mant uint64
-	nd, exp := 0, 0
-	digits, dot := false, false
-	for ; i < n; i++ {
-		c := b[i]
-		if c >= '0' && c <= '9' {
-			digits = true
-			if mant != 0 || c != '0' {
-				nd++
-				if nd > 15 {
-					return 0, false
-				}
-				mant = mant*10 + uint64(c-'0')
-			}
-			if dot {
-				exp--
-			}
-			continue
-		}
-		if c == '.' && !dot {
-			dot = true
-			continue
-		}
-		break
+	start := i
+	for i < n && b[i]-'0' < 10 {
+		mant = mant*10 + uint64(b[i]-'0')
+		i++
 	}
-	if !digits {
-		return 0, false
-	}
-	if i < n {
-		if b[i] != 'e' && b[i] != 'E' {
-			return 0, false
+	nd := i - start
+	exp := 0
+	if i < n && b[i] == '.' {
+		i++
+		fs := i
+		for i < n && b[i]-'0' < 10 {
+			mant = mant*10 + uint64(b[i]-'0')
+			i++
 		}
+		exp = fs - i
+		nd += i - fs
+	}
+	if nd == 0 || nd > 19 || mant > 1<<53 {
+		return 0, i, false
+	}
+	if i < n && (b[i] == 'e' || b[i] == 'E') {
 		i++
 		eneg := false
 		if i < n && (b[i] == '-' || b[i] == '+') {
 			eneg = b[i] == '-'
 			i++
 		}
-		if i == n || n-i > 3 {
-			return 0, false
+		es, e := i, 0
+		for i < n && b[i]-'0' < 10 && i-es < 4 {
+			e = e*10 + int(b[i]-'0')
+			i++
 		}
-		e := 0
-		for ; i < n; i++ {
-			c := b[i]
-			if c < '0' || c > '9' {
-				return 0, false
-			}
-			e = e*10 + int(c-'0')
+		if i == es || (i < n && b[i]-'0' < 10) {
+			return 0, i, false
 		}
 		if eneg {
 			e = -e
@@ -100,19 +93,18 @@ func parseFast(b []byte) (float64, bool) {
 	}
 	f := float64(mant)
 	switch {
-	case mant == 0:
-	case exp == 0:
+	case mant == 0 || exp == 0:
 	case exp > 0 && exp <= 22:
 		f *= pow10[exp]
 	case exp < 0 && exp >= -22:
 		f /= pow10[-exp]
 	default:
-		return 0, false
+		return 0, i, false
 	}
 	if neg {
 		f = -f
 	}
-	return f, true
+	return f, i, true
 }
 
 var timeLayouts = []string{
@@ -155,6 +147,6 @@ func isMissingText(b []byte) bool {
 	return false
 }
 
-func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
+func finite(v float64) bool { return v-v == 0 }
 
 func unixTime(sec, nsec int64) time.Time { return time.Unix(sec, nsec) }

@@ -76,6 +76,7 @@ type config struct {
 	chunkBytes     int
 	workers        int
 	mem            memory.Allocator
+	slowOnly       bool  // tests: CSV general path only
 	err            error // first bad option, reported by Open
 }
 
@@ -87,7 +88,7 @@ func newConfig(opts []Option) *config {
 		batchRows:  64 * 1024,
 		chunkBytes: 1 << 20,
 		workers:    runtime.GOMAXPROCS(0),
-		mem:        memory.DefaultAllocator,
+		mem:        defaultAllocator,
 	}
 	for _, o := range opts {
 		o(c)
@@ -220,9 +221,14 @@ func WithBatchSize(rows int) Option {
 // WithWorkers sets the number of CSV parser goroutines (default GOMAXPROCS).
 func WithWorkers(n int) Option { return func(c *config) { c.workers = n } }
 
-// WithAllocator sets the Arrow memory allocator for the record batches.
+// WithAllocator sets the Arrow memory allocator for the record batches
+// (default: a pool that recycles the buffers of released batches).
 func WithAllocator(mem memory.Allocator) Option { return func(c *config) { c.mem = mem } }
 
 // withChunkBytes sets the CSV parse chunk size (tests use small chunks to
 // exercise chunk boundaries).
 func withChunkBytes(n int) Option { return func(c *config) { c.chunkBytes = n } }
+
+// withSlowPathOnly turns off the CSV single-pass line parser (tests compare
+// it with the general path).
+func withSlowPathOnly() Option { return func(c *config) { c.slowOnly = true } }
