@@ -57,12 +57,13 @@ type resultDoc struct {
 		Sources    []docSource `json:"sources"`
 	} `json:"groups"`
 	Findings []struct {
-		Kind     string   `json:"kind"`
-		Severity string   `json:"severity"`
-		From     float64  `json:"chainage_from_m"`
-		To       float64  `json:"chainage_to_m"`
-		Groups   []string `json:"groups"`
-		Message  string   `json:"message"`
+		Kind     string     `json:"kind"`
+		Severity string     `json:"severity"`
+		From     float64    `json:"chainage_from_m"`
+		To       float64    `json:"chainage_to_m"`
+		Position [3]float64 `json:"position_m"`
+		Groups   []string   `json:"groups"`
+		Message  string     `json:"message"`
 		Values   []struct {
 			Name  string  `json:"name"`
 			Value float64 `json:"value"`
@@ -170,8 +171,9 @@ func matchSource(srcs []docSource, c simulate.Crossing) (docSource, bool) {
 // a traverse: current (signed along the fitted direction), depth below the
 // ground (the tests run locate with --reference-z 0), horizontal position
 // and, for AC, phase. tolFrac widens the current tolerance by a fraction
-// of the current and tolM the depth and position tolerances by a length,
-// where the test says why the model cannot match exactly.
+// of the current (and the phase tolerance by tolFrac radians), and tolM the
+// depth and position tolerances by a length, where the test says why the
+// model cannot match exactly.
 func checkCrossing(t *testing.T, key string, s docSource, c simulate.Crossing, tolFrac, tolM float64) {
 	t.Helper()
 	align := s.Direction[0]*c.Dir[0] + s.Direction[1]*c.Dir[1] + s.Direction[2]*c.Dir[2]
@@ -203,7 +205,9 @@ func checkCrossing(t *testing.T, key string, s docSource, c simulate.Crossing, t
 			t.Fatalf("%s: AC source without phase_deg", key)
 		}
 		d := math.Remainder(*s.Phase-phase, 360)
-		if math.Abs(d) > kSigma**s.PhaseSigma {
+		// A fractional error tolFrac in quadrature is a phase error of
+		// tolFrac radians.
+		if math.Abs(d) > kSigma**s.PhaseSigma+tolFrac*180/math.Pi {
 			t.Errorf("%s: phase %.4g ± %.2g deg, true %.4g (off by %.1f sigma)", key, *s.Phase, *s.PhaseSigma, phase, math.Abs(d) / *s.PhaseSigma)
 		}
 	}
@@ -316,12 +320,23 @@ func TestE2ECurrentStep(t *testing.T) {
 			continue
 		}
 		steps++
-		if strings.Join(f.Groups, ",") != "T13,T14" {
+		// The defect lies between T13 and T14. The end effect described
+		// above can make the neighbours show part of the fall too, which
+		// the route reports as one step over a run of traverses; the
+		// finding's position is then the middle of its largest part. Either
+		// way the bracket must hold the defect and the position must be
+		// midway between T13 and T14 (the fitted pipe points at chainage
+		// 240 and 260 m), near the defect at (248.95, 1.10).
+		keys := strings.Join(f.Groups, ",")
+		if !strings.Contains(keys, "T13,T14") || len(f.Groups) > 4 {
 			t.Errorf("step found between %v, want T13 and T14: %s", f.Groups, f.Message)
 			continue
 		}
-		if !(f.From < 250 && 250 < f.To) || f.To-f.From > 21 {
-			t.Errorf("step bracketed at chainage %g-%g m, want about 240-260 m", f.From, f.To)
+		if !(f.From < 250 && 250 < f.To) || f.To-f.From > 61 {
+			t.Errorf("step bracketed at chainage %g-%g m, want it around 250 m", f.From, f.To)
+		}
+		if d := math.Hypot(f.Position[0]-248.95, f.Position[1]-1.10); d > 2 {
+			t.Errorf("step placed at %v, %.2f m from the defect at (248.95, 1.10)", f.Position, d)
 		}
 		var size, sigma float64
 		for _, v := range f.Values {
@@ -330,10 +345,9 @@ func TestE2ECurrentStep(t *testing.T) {
 			}
 		}
 		// The true change between the currents under T13 and T14
-		// (1.7156 A to 1.4088 A). The fitted currents beside the defect
-		// are each pulled towards the other by the end effect described
-		// above, so allow 15% of the size; the step must still stand out
-		// by more than 10 sigma.
+		// (1.7156 A to 1.4088 A). Fitted currents beside the defect are
+		// pulled towards each other by the end effect, so allow 15% of
+		// the size; the step must still stand out by more than 10 sigma.
 		const trueStep = 1.4088 - 1.7156
 		if math.Abs(size-trueStep) > 0.15*math.Abs(trueStep) || math.Abs(size) < 10*sigma {
 			t.Errorf("step %.4g ± %.2g A, true %.4g A", size, sigma, trueStep)
@@ -359,13 +373,17 @@ func TestE2EACWalk(t *testing.T) {
 	}
 	truth := crossingsByLine(sc)
 	// A window is demodulated as a tone of constant amplitude, but the
-	// amplitude changes as the sensor walks over the cable; the fit then
-	// shifts the window's phase by about (dA/dt)/(A omega), which the line
-	// fit reads as a shift of the cable by up to v/omega = 3.2 mm (v = 1 m/s,
-	// omega = 2 pi 50 Hz), well inside any positioning error but more than
-	// the sub-millimetre sigma of 6,000 readings per traverse. Allow that
+	// amplitude A changes as the sensor walks over the cable. Over a whole
+	// number of cycles a linear change a1 t of the amplitude projects onto
+	// the quadrature term as a1/(2 omega), so each window's phasor carries a
+	// quadrature error of (dA/dt)/(2 A omega) of its size, of order
+	// v/(2 omega h), which the line fit reads partly as a shift of the
+	// cable by millimetres: the bound v/omega = 3.2 mm (v = 1 m/s, omega =
+	// 2 pi 50 Hz) is well inside any positioning error but more than the
+	// sub-millimetre sigma of 6,000 readings per traverse. Allow that
 	// length in depth and position, and the same fraction of the current
-	// (current scales with the distance to the cable, 1.1 m).
+	// (current scales with the distance to the cable, 1.1 m) and in radians
+	// of phase.
 	lag := sc.Survey.Speed / (2 * math.Pi * 50)
 	lagFrac := lag / (0.8 + sc.Sensor.Height)
 	for _, g := range doc.Groups {
@@ -373,9 +391,18 @@ func TestE2EACWalk(t *testing.T) {
 		if g.Points < 55 || g.Points > 61 {
 			t.Errorf("%s: %d windows, want about 60", g.Key, g.Points)
 		}
-		if len(g.Sources) != 1 {
-			t.Errorf("%s: %d sources, want 1", g.Key, len(g.Sources))
+		// The lag leaves a systematic residual that the automatic count
+		// may take for a second, far weaker conductor; the cable itself
+		// must be the strongest source and any other must carry under 1%
+		// of its current.
+		if len(g.Sources) == 0 {
+			t.Errorf("%s: no sources", g.Key)
 			continue
+		}
+		for _, extra := range g.Sources[1:] {
+			if extra.Current > 0.01*g.Sources[0].Current {
+				t.Errorf("%s: a second source of %.3g A beside the %.3g A cable", g.Key, extra.Current, g.Sources[0].Current)
+			}
 		}
 		checkCrossing(t, g.Key, g.Sources[0], truth[g.Key][0], lagFrac, lag)
 	}
