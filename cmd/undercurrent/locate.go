@@ -48,7 +48,6 @@ type locateOptions struct {
 	units        []string
 	title        string
 	workers      int
-	maxCount     int
 
 	// set by check
 	nCount int // 0 = auto
@@ -234,19 +233,19 @@ func progressOn(stderr io.Writer) io.Writer {
 
 // group is the readings of one group, ready to fit.
 type group struct {
-	key    string
-	points [][3]float64
-	fields [][3]float64    // DC
-	phase  [][3]complex128 // AC
-	res    *inverse.Result // fit
-	err    error           // fit failure
+	key     string
+	points  [][3]float64
+	fields  [][3]float64    // DC
+	phasors [][3]complex128 // AC
+	res     *inverse.Result // fit
+	err     error           // fit failure
 }
 
 // problem is the group's readings as an inverse problem.
 func (g *group) problem(ac bool, noise float64) *inverse.Problem {
 	p := &inverse.Problem{Points: g.points, Sigma: noise}
 	if ac {
-		p.Phasors = g.phase
+		p.Phasors = g.phasors
 	} else {
 		p.Fields = g.fields
 	}
@@ -432,7 +431,7 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 	for _, w := range res.Windows {
 		g := get(w.Group)
 		g.points = append(g.points, w.Pos)
-		g.phase = append(g.phase, w.B)
+		g.phasors = append(g.phasors, w.B)
 	}
 	return nil
 }
