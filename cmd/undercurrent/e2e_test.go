@@ -444,13 +444,24 @@ func TestDemo(t *testing.T) {
 	if len(doc.Groups) != 31 {
 		t.Errorf("%d groups, want 31 traverses", len(doc.Groups))
 	}
-	var fault, shallow bool
+	var fault, shallow, object bool
 	for _, f := range doc.Findings {
 		switch f.Kind {
 		case "current-step":
-			// The fault is at chainage 112.5 m, between T23 and T24.
+			// The fault is at chainage 112.5 m, between T23 and T24; it
+			// is the only step.
 			if f.From <= 112.5 && 112.5 <= f.To && f.Values != nil && f.Values[0].Value < 0 {
 				fault = true
+			} else {
+				t.Errorf("a step where there is none: %s", f.Message)
+			}
+		case "current-anomaly", "dipole-anomaly":
+			// The steel object lies 4 m from the cable at T07 (chainage
+			// 30 m); the finding may name T07's neighbours too.
+			if strings.Contains(strings.Join(f.Groups, ","), "T07") && f.From >= 24.9 && f.From <= 30.1 && f.To >= 29.9 && f.To <= 35.1 {
+				object = true
+			} else {
+				t.Errorf("an anomaly away from the steel object: %s", f.Message)
 			}
 		case "shallow-cover":
 			// 0.4 m of cover from chainage 58 m to 72 m.
@@ -464,6 +475,9 @@ func TestDemo(t *testing.T) {
 	}
 	if !shallow {
 		t.Error("the shallow stretch at chainage 58-72 m was not found")
+	}
+	if !object {
+		t.Error("the steel object at T07 was not reported")
 	}
 	var gj struct {
 		Type     string `json:"type"`
