@@ -2,10 +2,7 @@ package inverse
 
 import (
 	"errors"
-	"math"
 
-	"gonum.org/v1/gonum/blas/blas64"
-	"gonum.org/v1/gonum/lapack/lapack64"
 	"gonum.org/v1/gonum/mat"
 )
 
@@ -23,63 +20,77 @@ func covariance(J mat.Matrix) (cov *mat.SymDense, unresolved []bool, err error) 
 	if m < n {
 		return nil, nil, errors.New("inverse: fewer readings than parameters")
 	}
+	// Column-major copy of J, scaled to unit column norms.
+	a := make([]float64, m*n+n+3*n*n)
+	tau, rf, v := a[m*n:m*n+n], a[m*n+n:m*n+n+n*n], a[m*n+n+n*n:m*n+n+2*n*n]
+	sv := a[m*n+n+2*n*n : m*n+n+2*n*n+n]
+	a = a[:m*n]
+	if jd, ok := J.(*mat.Dense); ok {
+		raw := jd.RawMatrix()
+		for i := range m {
+			row := raw.Data[i*raw.Stride : i*raw.Stride+n]
+			for j, x := range row {
+				a[j*m+i] = x
+			}
+		}
+	} else {
+		for i := range m {
+			for j := range n {
+				a[j*m+i] = J.At(i, j)
+			}
+		}
+	}
 	d := make([]float64, n)
 	for j := range n {
-		var s float64
-		for i := range m {
-			v := J.At(i, j)
-			s += v * v
-		}
-		d[j] = math.Sqrt(s)
+		col := a[j*m : (j+1)*m]
+		d[j] = norm2(col)
 		if d[j] == 0 {
 			d[j] = 1
+		}
+		for i := range col {
+			col[i] /= d[j]
 		}
 	}
 	// QR of the scaled Jacobian first; the SVD of its small triangular factor has the
 	// same singular values and right singular vectors.
-	a := blas64.General{Rows: m, Cols: n, Stride: n, Data: make([]float64, m*n)}
-	for i := range m {
-		for j := range n {
-			a.Data[i*n+j] = J.At(i, j) / d[j]
+	houseQR(a, m, n, tau)
+	for k := range n {
+		for i := range n {
+			if i <= k {
+				rf[k*n+i] = a[k*m+i]
+			} else {
+				rf[k*n+i] = 0
+			}
 		}
 	}
-	tau := make([]float64, n)
-	work := make([]float64, max(n, 1))
-	lapack64.Geqrf(a, tau, work, len(work))
-	rf := mat.NewDense(n, n, nil)
-	for i := range n {
-		for j := i; j < n; j++ {
-			rf.Set(i, j, a.Data[i*n+j])
-		}
-	}
-	var svd mat.SVD
-	if !svd.Factorize(rf, mat.SVDThin) {
+	if !jacobiSVD(rf, n, sv, v) {
 		return nil, nil, errors.New("inverse: singular value decomposition failed")
 	}
-	sv := svd.Values(nil)
-	var V mat.Dense
-	svd.VTo(&V)
 	unresolved = make([]bool, n)
-	cov = mat.NewSymDense(n, nil)
+	c := make([]float64, n*n)
 	for k, s := range sv {
+		vk := v[k*n : (k+1)*n]
 		if s <= rankTol*sv[0] {
 			for j := range n {
-				if v := V.At(j, k); v*v > 1e-4 {
+				if vk[j]*vk[j] > 1e-4 {
 					unresolved[j] = true
 				}
 			}
 			continue
 		}
+		s2 := s * s
 		for i := range n {
+			vi := vk[i] / s2
 			for j := i; j < n; j++ {
-				cov.SetSym(i, j, cov.At(i, j)+V.At(i, k)*V.At(j, k)/(s*s))
+				c[i*n+j] += vi * vk[j]
 			}
 		}
 	}
 	for i := range n {
 		for j := i; j < n; j++ {
-			cov.SetSym(i, j, cov.At(i, j)/(d[i]*d[j]))
+			c[i*n+j] /= d[i] * d[j]
+			c[j*n+i] = c[i*n+j]
 		}
 	}
-	return cov, unresolved, nil
+	return mat.NewSymDense(n, c), unresolved, nil
 }

@@ -4,8 +4,6 @@ import (
 	"errors"
 	"math"
 
-	"gonum.org/v1/gonum/blas/blas64"
-	"gonum.org/v1/gonum/lapack/lapack64"
 	"gonum.org/v1/gonum/mat"
 )
 
@@ -89,23 +87,15 @@ func levmar(p *lmProblem, x0 []float64, set lmSettings) (*lmResult, error) {
 	}
 	res := &lmResult{nfev: 1}
 	J := mat.NewDense(m, n, nil)
-	diag := make([]float64, n)
-	xt := make([]float64, n)
-	rt := make([]float64, m)
-	step := make([]float64, n)
-	jp := make([]float64, m)
+	// One allocation for every work vector of the iterations.
+	buf := make([]float64, 7*n+2*m+m*(n+1)+(n+1)+3*n*n)
+	take := func(k int) []float64 { s := buf[:k:k]; buf = buf[k:]; return s }
+	diag, xt, step, cn2, grad := take(n), take(n), take(n), take(n), take(n)
+	qtrBuf, betaBuf := take(n), take(n)
+	rt, jp := take(m), take(m)
+	aug, tau := take(m*(n+1)), take(n+1)
+	rBuf, vBuf, svBuf := take(n*n), take(n*n), take(n*n)[:n]
 	free := make([]int, 0, n)
-	var (
-		rCache          *mat.Dense
-		svd             mat.SVD
-		U, V            mat.Dense
-		qtrBuf, betaBuf = make([]float64, n), make([]float64, n)
-	)
-	cn2 := make([]float64, n)
-	grad := make([]float64, n)
-	aug := make([]float64, m*(n+1))
-	tau := make([]float64, n+1)
-	work := make([]float64, 1)
 	var delta float64
 	status := MaxIterations
 	jacFresh := false
@@ -172,50 +162,41 @@ func levmar(p *lmProblem, x0 []float64, set lmSettings) (*lmResult, error) {
 				delta = set.factor
 			}
 		}
-		// QR of [J_free D^-1 | r] (column major for LAPACK is row major transposed: build
-		// the row-major m x (nf+1) matrix directly).
+		// Householder QR of the column-major m x (nf+1) matrix [J_free D^-1 | r].
 		nf := len(free)
-		a := blas64.General{Rows: m, Cols: nf + 1, Stride: nf + 1, Data: aug[:m*(nf+1)]}
-		for i := range m {
-			row := a.Data[i*a.Stride:]
-			jrow := jd.Data[i*jd.Stride:]
-			for k, j := range free {
-				row[k] = jrow[j] / diag[j]
+		a := aug[:m*(nf+1)]
+		for k, j := range free {
+			col, dj := a[k*m:(k+1)*m], diag[j]
+			for i := range m {
+				col[i] = jd.Data[i*jd.Stride+j] / dj
 			}
-			row[nf] = r[i]
 		}
-		if len(work) < nf+1 {
-			work = make([]float64, nf+1)
-		}
-		lapack64.Geqrf(a, tau[:nf+1], work, len(work))
-		if rCache == nil || rCache.RawMatrix().Rows != nf {
-			rCache = mat.NewDense(nf, nf, nil)
-			U.Reset()
-			V.Reset()
-		} else {
-			rCache.Zero()
-		}
-		R := rCache
+		copy(a[nf*m:], r)
+		houseQR(a, m, nf+1, tau)
+		// R (nf x nf, column-major) and the first nf components of Q^T r.
+		R := rBuf[:nf*nf]
 		qtr := qtrBuf[:nf]
-		for i := range nf {
-			for k := i; k < nf; k++ {
-				R.Set(i, k, a.Data[i*a.Stride+k])
+		for k := range nf {
+			for i := range nf {
+				if i <= k {
+					R[k*nf+i] = a[k*m+i]
+				} else {
+					R[k*nf+i] = 0
+				}
 			}
-			qtr[i] = a.Data[i*a.Stride+nf]
+			qtr[k] = a[nf*m+k]
 		}
-
-		if !svd.Factorize(R, mat.SVDThin) {
+		// SVD of R: R = U S V^T (R is overwritten with U).
+		V, sv := vBuf[:nf*nf], svBuf[:nf]
+		if !jacobiSVD(R, nf, sv, V) {
 			status = Stalled
 			break
 		}
-		sv := svd.Values(nil)
-		svd.UTo(&U)
-		svd.VTo(&V)
 		beta := betaBuf[:nf]
 		for k := range nf {
 			var s float64
 			for i := range nf {
-				s += U.At(i, k) * qtr[i]
+				s += R[k*nf+i] * qtr[i]
 			}
 			beta[k] = s
 		}
@@ -247,8 +228,9 @@ func levmar(p *lmProblem, x0 []float64, set lmSettings) (*lmResult, error) {
 					continue
 				}
 				c := -sk * beta[k] / (sk*sk + lambda)
+				vk := V[k*nf : (k+1)*nf]
 				for i, j := range free {
-					step[j] += V.At(i, k) * c
+					step[j] += vk[i] * c
 				}
 			}
 			var dpn float64

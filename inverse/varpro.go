@@ -4,9 +4,6 @@ import (
 	"errors"
 	"math"
 
-	"gonum.org/v1/gonum/blas"
-	"gonum.org/v1/gonum/blas/blas64"
-	"gonum.org/v1/gonum/lapack/lapack64"
 	"gonum.org/v1/gonum/mat"
 )
 
@@ -65,11 +62,19 @@ type separable struct {
 	dips []dipGeom
 	q    int // basis columns: lines, then 3 per dipole, then background
 
-	// workspace and cached state of the last evaluation
-	phi, qty, coef, tau, work []float64
-	dblk                      []float64
-	at                        []float64 // x of the cached state
-	ok                        bool
+	// workspace and cached state of the last evaluation. The uniform background columns
+	// are projected out analytically (see evaluate); a holds the other g = q - 3 columns
+	// (or all q without a uniform background), weighted, projected and factored by
+	// houseQR, column-major; qty holds Q^T of the projected weighted data, m x nrhs
+	// column-major.
+	a, qty, coef, tau []float64
+	pos               []int        // physical column of each basis column in a; -1 for uniform background
+	g                 int          // columns of a
+	bn2               [3]float64   // squared norms of the weighted uniform background columns
+	bbar              [][3]float64 // per column of a: its projection coefficients on them
+	dblk              []float64
+	at                []float64 // x of the cached state
+	ok                bool
 }
 
 // dipGeom is the position of a fitted point dipole and its bounds.
@@ -84,8 +89,28 @@ func newSeparable(pts [][3]float64, y []float64, nrhs int, bg BackgroundModel, o
 	m := 3 * len(pts)
 	sp := &separable{pts: pts, m: m, nrhs: nrhs, y: y, bg: bg, org: org, geom: geom, dips: dips}
 	sp.q = len(geom) + 3*len(dips) + bg.columns()
+	// Layout of a: lines, dipoles, gradient terms; the uniform background is implicit.
+	sp.pos = make([]int, sp.q)
+	bc := sp.bgCol()
+	for c := range sp.pos {
+		switch {
+		case c < bc:
+			sp.pos[c] = c
+		case c < bc+3:
+			sp.pos[c] = -1
+		default:
+			sp.pos[c] = c - 3
+		}
+	}
+	sp.g = sp.q
+	if bg.columns() >= 3 {
+		sp.g = sp.q - 3
+	}
 	return sp
 }
+
+// uniform reports whether the basis has the three uniform background columns.
+func (sp *separable) uniform() bool { return sp.g < sp.q }
 
 // dipCol is the first basis column of dipole i; bgCol that of the background.
 func (sp *separable) dipCol(i int) int { return len(sp.geom) + 3*i }
@@ -156,104 +181,206 @@ func (sp *separable) weight(row int) float64 {
 
 // buildPhi fills the weighted basis matrix (m x q, row-major, nT per A or per nT).
 func (sp *separable) buildPhi(phi []float64) error {
-	q := sp.q
-	lines := make([]Line, len(sp.geom))
-	for l := range sp.geom {
-		lines[l] = sp.geom[l].line()
-	}
-	bgc := Background{Origin: sp.org, Gradient: sp.bg == BackgroundGradient}
-	var basis [8][3]float64
-	for i, r := range sp.pts {
-		for l, ln := range lines {
-			// Line.Field with the unit direction already in hand.
-			d := sub(r, ln.Point)
-			u := ln.Dir
-			du := dot(d, u)
-			rho := sub(d, scale(u, du))
-			b := scale(cross(u, d), nT*k2pi/dot(rho, rho))
-			for j := range 3 {
-				phi[(3*i+j)*q+l] = b[j]
-			}
+	return sp.fillPhi(phi, sp.q, 1, nil)
+}
+
+// fillPhi writes the weighted basis: element (row, column c) goes to phi[row*rs +
+// pos[c]*cs], or phi[row*rs + c*cs] when pos is nil; columns with pos[c] < 0 are skipped.
+func (sp *separable) fillPhi(phi []float64, rs, cs int, pos []int) error {
+	col := func(c int) int {
+		if pos == nil {
+			return c
 		}
-		for di, d := range sp.dips {
-			Dipole{Pos: d.pos}.Basis(r, basis[:3])
-			c0 := sp.dipCol(di)
+		return pos[c]
+	}
+	var basis [8][3]float64
+	for l := range sp.geom {
+		ln := sp.geom[l].line()
+		u, p0, off := ln.Dir, ln.Point, col(l)*cs
+		for i, r := range sp.pts {
+			// Line.Field with the unit direction already in hand.
+			d0, d1, d2 := r[0]-p0[0], r[1]-p0[1], r[2]-p0[2]
+			du := d0*u[0] + d1*u[1] + d2*u[2]
+			r0, r1, r2 := d0-du*u[0], d1-du*u[1], d2-du*u[2]
+			k := nT * k2pi / (r0*r0 + r1*r1 + r2*r2)
+			row := 3*i*rs + off
+			phi[row] = k * (u[1]*d2 - u[2]*d1)
+			phi[row+rs] = k * (u[2]*d0 - u[0]*d2)
+			phi[row+2*rs] = k * (u[0]*d1 - u[1]*d0)
+		}
+	}
+	for di, d := range sp.dips {
+		c0 := sp.dipCol(di)
+		dp := Dipole{Pos: d.pos}
+		for i, r := range sp.pts {
+			dp.Basis(r, basis[:3])
 			for k := range 3 {
 				for j := range 3 {
-					phi[(3*i+j)*q+c0+k] = nT * basis[k][j]
-				}
-			}
-		}
-		if nb := sp.bg.columns(); nb > 0 {
-			bgc.Basis(r, basis[:nb])
-			c0 := sp.bgCol()
-			for k := range nb {
-				for j := range 3 {
-					phi[(3*i+j)*q+c0+k] = basis[k][j]
+					phi[(3*i+j)*rs+col(c0+k)*cs] = nT * basis[k][j]
 				}
 			}
 		}
 	}
-	for row := range sp.m {
-		w := sp.weight(row)
-		for k := range q {
-			v := phi[row*q+k] * w
+	if nb := sp.bg.columns(); nb > 0 {
+		bgc := Background{Origin: sp.org, Gradient: sp.bg == BackgroundGradient}
+		c0 := sp.bgCol()
+		for i, r := range sp.pts {
+			bgc.Basis(r, basis[:nb])
+			for k := range nb {
+				if c := col(c0 + k); c >= 0 {
+					for j := range 3 {
+						phi[(3*i+j)*rs+c*cs] = basis[k][j]
+					}
+				}
+			}
+		}
+	}
+	for c := range sp.q {
+		pc := col(c)
+		if pc < 0 {
+			continue
+		}
+		for row := range sp.m {
+			v := phi[row*rs+pc*cs]
+			if sp.w != nil {
+				v *= sp.w[row]
+			}
 			if !finite(v) {
 				return errors.New("inverse: a trial conductor passes through a sensor")
 			}
-			phi[row*q+k] = v
+			phi[row*rs+pc*cs] = v
 		}
 	}
 	return nil
 }
 
+// project removes from the m-vector v (weighted rows) its component in the span of the
+// weighted uniform background columns b_e, b_n, b_u (disjoint supports: every third
+// row), v <- v - sum_a b_a (b_a.v)/(b_a.b_a), and returns the coefficients (b_a.v)/(b_a.b_a).
+func (sp *separable) project(v []float64) [3]float64 {
+	var s [3]float64
+	v = v[:sp.m]
+	w := sp.w
+	for i := 0; i < len(v); i += 3 {
+		if w == nil {
+			s[0] += v[i]
+			s[1] += v[i+1]
+			s[2] += v[i+2]
+		} else {
+			s[0] += w[i] * v[i]
+			s[1] += w[i+1] * v[i+1]
+			s[2] += w[i+2] * v[i+2]
+		}
+	}
+	for a := range 3 {
+		s[a] /= sp.bn2[a]
+	}
+	for i := 0; i < len(v); i += 3 {
+		if w == nil {
+			v[i] -= s[0]
+			v[i+1] -= s[1]
+			v[i+2] -= s[2]
+		} else {
+			v[i] -= w[i] * s[0]
+			v[i+1] -= w[i+1] * s[1]
+			v[i+2] -= w[i+2] * s[2]
+		}
+	}
+	return s
+}
+
 // evaluate factors the basis at x and solves for the strengths.
+//
+// With a uniform background Phi = [L, B], B holding the three weighted per-axis
+// constant columns, the projection factors as P_perp = P_perp(P_B L) P_perp(B): B is
+// removed from every other column and from the data analytically (a weighted mean per
+// axis, exact because the columns of B have disjoint supports), and only the projected
+// columns P_B L are factored by Householder QR. The background strengths follow by back
+// substitution, c_B = (B^T y - B^T L c_L)/diag(B^T B).
 func (sp *separable) evaluate(x []float64) error {
 	if sp.ok && equal(sp.at, x) {
 		return nil
 	}
 	sp.ok = false
 	sp.unpack(x)
-	m, q, nr := sp.m, sp.q, sp.nrhs
+	m, q, nr, g := sp.m, sp.q, sp.nrhs, sp.g
 	if m <= q {
 		return errors.New("inverse: too few readings for the number of sources")
 	}
-	sp.phi = grow(sp.phi, m*q)
+	sp.a = grow(sp.a, m*max(g, 1))
 	sp.qty = grow(sp.qty, m*nr)
 	sp.coef = grow(sp.coef, q*nr)
-	sp.tau = grow(sp.tau, q)
-	if err := sp.buildPhi(sp.phi); err != nil {
+	sp.tau = grow(sp.tau, max(g, 1))
+	if err := sp.fillPhi(sp.a, 1, m, sp.pos); err != nil {
 		return err
 	}
 	for row := range m {
 		w := sp.weight(row)
 		for k := range nr {
-			sp.qty[row*nr+k] = sp.y[row*nr+k] * w
+			sp.qty[k*m+row] = sp.y[row*nr+k] * w
 		}
 	}
-	a := blas64.General{Rows: m, Cols: q, Stride: q, Data: sp.phi}
-	sp.ensureWork(a, nr)
-	lapack64.Geqrf(a, sp.tau, sp.work, len(sp.work))
-	// Rank check on the diagonal of R.
 	var rmax float64
-	for k := range q {
-		rmax = math.Max(rmax, math.Abs(sp.phi[k*q+k]))
+	var ybar [2][3]float64
+	if sp.uniform() {
+		sp.bn2 = [3]float64{}
+		for row := range m {
+			w := sp.weight(row)
+			sp.bn2[row%3] += w * w
+		}
+		for a := range 3 {
+			if !(sp.bn2[a] > 0) {
+				return errSingularBasis
+			}
+			rmax = math.Max(rmax, math.Sqrt(sp.bn2[a]))
+		}
+		if cap(sp.bbar) < g {
+			sp.bbar = make([][3]float64, g)
+		}
+		sp.bbar = sp.bbar[:g]
+		for j := range g {
+			sp.bbar[j] = sp.project(sp.a[j*m : (j+1)*m])
+		}
+		for k := range nr {
+			ybar[k] = sp.project(sp.qty[k*m : (k+1)*m])
+		}
 	}
-	for k := range q {
-		if math.Abs(sp.phi[k*q+k]) <= 1e-11*rmax {
+	houseQR(sp.a, m, g, sp.tau)
+	// Rank check on the diagonal of R.
+	for k := range g {
+		rmax = math.Max(rmax, math.Abs(sp.a[k*m+k]))
+	}
+	for k := range g {
+		if math.Abs(sp.a[k*m+k]) <= 1e-11*rmax {
 			return errSingularBasis
 		}
 	}
-	c := blas64.General{Rows: m, Cols: nr, Stride: nr, Data: sp.qty}
-	lapack64.Ormqr(blas.Left, blas.Trans, a, sp.tau, c, sp.work, len(sp.work))
-	// Back substitution R coef = (Q^T y)[:q].
+	houseApplyQT(sp.a, m, g, sp.tau, sp.qty, nr)
+	// Back substitution R c = (Q^T y)[:g] for the factored columns, then the uniform
+	// background.
+	var cg [64]float64
 	for k := range nr {
-		for i := q - 1; i >= 0; i-- {
-			s := sp.qty[i*nr+k]
-			for j := i + 1; j < q; j++ {
-				s -= sp.phi[i*q+j] * sp.coef[j*nr+k]
+		for i := g - 1; i >= 0; i-- {
+			s := sp.qty[k*m+i]
+			for j := i + 1; j < g; j++ {
+				s -= sp.a[j*m+i] * cg[j]
 			}
-			sp.coef[i*nr+k] = s / sp.phi[i*q+i]
+			cg[i] = s / sp.a[i*m+i]
+		}
+		for c := range q {
+			if p := sp.pos[c]; p >= 0 {
+				sp.coef[c*nr+k] = cg[p]
+			}
+		}
+		if sp.uniform() {
+			bc := sp.bgCol()
+			for a := range 3 {
+				v := ybar[k][a]
+				for j := range g {
+					v -= sp.bbar[j][a] * cg[j]
+				}
+				sp.coef[(bc+a)*nr+k] = v
+			}
 		}
 	}
 	sp.at = append(sp.at[:0], x...)
@@ -261,47 +388,36 @@ func (sp *separable) evaluate(x []float64) error {
 	return nil
 }
 
-func (sp *separable) ensureWork(a blas64.General, ncols int) {
-	// The unblocked Householder code needs only max(columns) of workspace; the blocked
-	// code would ask for far more and gains nothing at these sizes.
-	if need := max(a.Cols, ncols, 1); len(sp.work) < need {
-		sp.work = make([]float64, need)
-	}
-}
-
 // residLen is the length of the projected residual.
-func (sp *separable) residLen() int { return (sp.m - sp.q) * sp.nrhs }
+func (sp *separable) residLen() int { return (sp.m - sp.g) * sp.nrhs }
 
 func (sp *separable) resid(x, r []float64) error {
 	if err := sp.evaluate(x); err != nil {
 		return err
 	}
-	mq := sp.m - sp.q
+	m, g := sp.m, sp.g
 	for k := range sp.nrhs {
-		for i := range mq {
-			r[k*mq+i] = sp.qty[(sp.q+i)*sp.nrhs+k]
-		}
+		copy(r[k*(m-g):(k+1)*(m-g)], sp.qty[k*m+g:(k+1)*m])
 	}
 	return nil
 }
 
 // dPhiC writes, for every free parameter p and right-hand side k, the weighted vector
-// (dPhi/dtheta_p) c_k into column p*nrhs+k of the m x (np*nrhs) row-major dst.
+// (dPhi/dtheta_p) c_k into column p*nrhs+k of the m x (np*nrhs) column-major dst.
 func (sp *separable) dPhiC(dst []float64, np int) {
-	nr := sp.nrhs
-	cols := np * nr
-	for i := range dst {
-		dst[i] = 0
-	}
+	nr, m := sp.nrhs, sp.m
+	dst = dst[:m*np*nr]
 	p := 0
+	w := sp.w
 	for l := range sp.geom {
 		g := &sp.geom[l]
 		ln := g.line()
 		u, p0 := ln.Dir, ln.Point
 		sa, ca := math.Sincos(g.az)
 		sd, cd := math.Sincos(g.dip)
-		// Directions of the free parameters: dPoint/ds = n0, dPoint/dz = up, du/daz, du/ddip.
-		var dirs [4][3]float64
+		// Directions of the free parameters: dPoint/ds = n0, dPoint/dz = up, du/daz,
+		// du/ddip; for the point parameters u x v is the same at every reading.
+		var dirs, uxv [4][3]float64
 		var isDir [4]bool // true: derivative along u; false: along the point
 		dirs[0], dirs[1] = g.n0, [3]float64{0, 0, 1}
 		nd := 2
@@ -313,34 +429,55 @@ func (sp *separable) dPhiC(dst []float64, np int) {
 			dirs[nd], isDir[nd] = [3]float64{-sa * sd, -ca * sd, -cd}, true
 			nd++
 		}
+		for k := range nd {
+			uxv[k] = cross(u, dirs[k])
+		}
+		// Output columns per parameter and right-hand side, and the strengths.
+		var out [4][2][]float64
+		var cl [2]float64
+		for h := range nr {
+			cl[h] = sp.coef[l*nr+h]
+			for k := range nd {
+				out[k][h] = dst[((p+k)*nr+h)*m : ((p+k)*nr+h+1)*m]
+			}
+		}
 		for i, r := range sp.pts {
 			// B = K (u x d)/q, d = r - p0, q = |d|^2 - (d.u)^2, rho = d - (d.u) u.
 			// dB/dp0 . v = -K (u x v / q - 2 (rho.v)(u x d)/q^2)
 			// dB/du . w =  K (w x d / q + 2 (d.u)(d.w)(u x d)/q^2)
-			d := sub(r, p0)
-			du := dot(d, u)
-			rho := sub(d, scale(u, du))
-			q := dot(rho, rho)
-			ux := cross(u, d)
+			d0, d1, d2 := r[0]-p0[0], r[1]-p0[1], r[2]-p0[2]
+			du := d0*u[0] + d1*u[1] + d2*u[2]
+			r0, r1, r2 := d0-du*u[0], d1-du*u[1], d2-du*u[2]
+			q := r0*r0 + r1*r1 + r2*r2
+			x0, x1, x2 := u[1]*d2-u[2]*d1, u[2]*d0-u[0]*d2, u[0]*d1-u[1]*d0
 			kq := nT * k2pi / q
 			kq2 := 2 * kq / q
-			var derivs [4][3]float64
-			for k := range nd {
-				v := dirs[k]
-				if isDir[k] {
-					derivs[k] = add(scale(cross(v, d), kq), scale(ux, kq2*du*dot(d, v)))
-				} else {
-					derivs[k] = add(scale(cross(u, v), -kq), scale(ux, kq2*dot(rho, v)))
-				}
+			row := 3 * i
+			w0, w1, w2 := 1.0, 1.0, 1.0
+			if w != nil {
+				w0, w1, w2 = w[row], w[row+1], w[row+2]
 			}
-			for j := range 3 {
-				row := 3*i + j
-				w := sp.weight(row)
-				base := dst[row*cols:]
-				for k := range nd {
-					for h := range nr {
-						base[(p+k)*nr+h] = derivs[k][j] * sp.coef[l*nr+h] * w
-					}
+			for k := range nd {
+				v := &dirs[k]
+				var b0, b1, b2 float64
+				if isDir[k] {
+					t := kq2 * du * (d0*v[0] + d1*v[1] + d2*v[2])
+					b0 = kq*(v[1]*d2-v[2]*d1) + t*x0
+					b1 = kq*(v[2]*d0-v[0]*d2) + t*x1
+					b2 = kq*(v[0]*d1-v[1]*d0) + t*x2
+				} else {
+					t := kq2 * (r0*v[0] + r1*v[1] + r2*v[2])
+					c := &uxv[k]
+					b0 = t*x0 - kq*c[0]
+					b1 = t*x1 - kq*c[1]
+					b2 = t*x2 - kq*c[2]
+				}
+				for h := range nr {
+					o := out[k][h][row : row+3]
+					s := cl[h]
+					o[0] = b0 * s * w0
+					o[1] = b1 * s * w1
+					o[2] = b2 * s * w2
 				}
 			}
 		}
@@ -351,14 +488,13 @@ func (sp *separable) dPhiC(dst []float64, np int) {
 		c0 := sp.dipCol(di)
 		for i, r := range sp.pts {
 			for h := range nr {
-				m := [3]float64{sp.coef[c0*nr+h], sp.coef[(c0+1)*nr+h], sp.coef[(c0+2)*nr+h]}
-				_, dPos := dp.FieldJac(r, m)
+				mom := [3]float64{sp.coef[c0*nr+h], sp.coef[(c0+1)*nr+h], sp.coef[(c0+2)*nr+h]}
+				_, dPos := dp.FieldJac(r, mom)
 				for j := range 3 {
 					row := 3*i + j
 					w := sp.weight(row) * nT
-					base := dst[row*cols:]
 					for k := range 3 {
-						base[(p+k)*nr+h] = dPos[j][k] * w
+						dst[((p+k)*nr+h)*m+row] = dPos[j][k] * w
 					}
 				}
 			}
@@ -372,22 +508,23 @@ func (sp *separable) jac(x, _ []float64, J *mat.Dense) error {
 		return err
 	}
 	np := sp.nparams()
-	nr := sp.nrhs
+	m, g, nr := sp.m, sp.g, sp.nrhs
 	cols := np * nr
-	sp.dblk = grow(sp.dblk, sp.m*cols)
+	sp.dblk = grow(sp.dblk, m*cols)
 	sp.dPhiC(sp.dblk, np)
-	a := blas64.General{Rows: sp.m, Cols: sp.q, Stride: sp.q, Data: sp.phi}
-	c := blas64.General{Rows: sp.m, Cols: cols, Stride: cols, Data: sp.dblk}
-	sp.ensureWork(a, cols)
-	lapack64.Ormqr(blas.Left, blas.Trans, a, sp.tau, c, sp.work, len(sp.work))
-	mq := sp.m - sp.q
+	if sp.uniform() {
+		for c := range cols {
+			sp.project(sp.dblk[c*m : (c+1)*m])
+		}
+	}
+	houseApplyQT(sp.a, m, g, sp.tau, sp.dblk, cols)
+	mg := m - g
 	jd := J.RawMatrix()
 	for k := range nr {
-		for i := range mq {
-			row := jd.Data[(k*mq+i)*jd.Stride:]
-			src := sp.dblk[(sp.q+i)*cols:]
-			for p := range np {
-				row[p] = -src[p*nr+k]
+		for p := range np {
+			src := sp.dblk[(p*nr+k)*m+g : (p*nr+k+1)*m]
+			for i, v := range src {
+				jd.Data[(k*mg+i)*jd.Stride+p] = -v
 			}
 		}
 	}
@@ -421,7 +558,7 @@ func (sp *separable) fullJacobian(x []float64) (*mat.Dense, error) {
 	for k := range nr {
 		for row := range m {
 			for p := range np {
-				J.Set(k*m+row, p, dblk[row*cols+p*nr+k])
+				J.Set(k*m+row, p, dblk[(p*nr+k)*m+row])
 			}
 			for j := range q {
 				J.Set(k*m+row, np+k*q+j, phi[row*q+j])

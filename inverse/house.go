@@ -1,0 +1,226 @@
+package inverse
+
+import "math"
+
+// Dense kernels for the small problems of the fits: Householder QR on column-major
+// storage and a one-sided Jacobi singular value decomposition. The fits factor tall,
+// thin matrices (hundreds of rows, a handful of columns) many times per solve; general
+// LAPACK code spends more time on call overhead and strided access than on arithmetic
+// at these sizes, so the reflections are applied here directly to contiguous columns.
+//
+// The QR follows the LAPACK convention (Golub & Van Loan, Matrix Computations, 4th ed.,
+// section 5.1): column j of the factored matrix holds R[0..j][j] on and above the
+// diagonal and the essential part of the Householder vector v_j (v_j[j] = 1 implied)
+// below it; H_j = I - tau_j v_j v_j^T and Q = H_0 H_1 ... H_{n-1}.
+//
+// The SVD is Hestenes' one-sided Jacobi method (Demmel & Veselic, SIAM J. Matrix Anal.
+// Appl. 13(4):1204-1245, 1992): plane rotations orthogonalise the columns of A in
+// place, A V = U S. It is used only on the small triangular factors of those QRs, where
+// it computes even the small singular values to high relative accuracy.
+
+// houseQR factors the m x n column-major matrix a (column j is a[j*m:(j+1)*m], m >= n)
+// in place as described above, writing tau[0:n]. It panics if the slices are short.
+func houseQR(a []float64, m, n int, tau []float64) {
+	_ = a[m*n-1]
+	_ = tau[n-1]
+	for j := range n {
+		col := a[j*m+j : (j+1)*m]
+		tau[j] = houseGen(col)
+		if tau[j] == 0 {
+			continue
+		}
+		for k := j + 1; k < n; k++ {
+			houseApply(col, tau[j], a[k*m+j:(k+1)*m])
+		}
+	}
+}
+
+// houseApplyQT overwrites the k columns of the m x k column-major matrix c with Q^T c,
+// Q being the factor left in a and tau by houseQR(a, m, n, tau).
+func houseApplyQT(a []float64, m, n int, tau []float64, c []float64, k int) {
+	for col := range k {
+		cc := c[col*m : (col+1)*m]
+		for j := range n {
+			if tau[j] != 0 {
+				houseApply(a[j*m+j:(j+1)*m], tau[j], cc[j:])
+			}
+		}
+	}
+}
+
+// houseGen generates the reflector that maps x onto beta e_0 (LAPACK dlarfg): on return
+// x[0] = beta, x[1:] holds the essential part of v, and the result is tau (0 when x[1:]
+// is already zero).
+func houseGen(x []float64) float64 {
+	xn := norm2(x[1:])
+	if xn == 0 {
+		return 0
+	}
+	alpha := x[0]
+	beta := -math.Copysign(math.Hypot(alpha, xn), alpha)
+	tau := (beta - alpha) / beta
+	s := 1 / (alpha - beta) // |alpha - beta| = |alpha| + |beta|: no cancellation
+	for i := 1; i < len(x); i++ {
+		x[i] *= s
+	}
+	x[0] = beta
+	return tau
+}
+
+// houseApply applies H = I - tau v v^T to c, with v[0] = 1 implied (v[0] is not read)
+// and len(c) == len(v).
+func houseApply(v []float64, tau float64, c []float64) {
+	c = c[:len(v)]
+	s := c[0] + dotFrom1(v, c)
+	s *= tau
+	c[0] -= s
+	for i := 1; i < len(v); i++ {
+		c[i] -= s * v[i]
+	}
+}
+
+// dotFrom1 returns sum_{i>=1} a[i] b[i] with four accumulators; len(b) >= len(a).
+func dotFrom1(a, b []float64) float64 {
+	b = b[:len(a)]
+	var s0, s1, s2, s3 float64
+	i := 1
+	for ; i+3 < len(a); i += 4 {
+		s0 += a[i] * b[i]
+		s1 += a[i+1] * b[i+1]
+		s2 += a[i+2] * b[i+2]
+		s3 += a[i+3] * b[i+3]
+	}
+	for ; i < len(a); i++ {
+		s0 += a[i] * b[i]
+	}
+	return (s0 + s1) + (s2 + s3)
+}
+
+// norm2 returns the Euclidean norm of x without undue overflow or underflow.
+func norm2(x []float64) float64 {
+	var s0, s1 float64
+	i := 0
+	for ; i+1 < len(x); i += 2 {
+		s0 += x[i] * x[i]
+		s1 += x[i+1] * x[i+1]
+	}
+	if i < len(x) {
+		s0 += x[i] * x[i]
+	}
+	s := s0 + s1
+	if s > 1e-280 && s < 1e280 {
+		return math.Sqrt(s)
+	}
+	if s == 0 {
+		var big float64
+		for _, v := range x {
+			big = math.Max(big, math.Abs(v))
+		}
+		if big == 0 {
+			return 0
+		}
+	}
+	// Rescaled accumulation (LAPACK dnrm2 style) for extreme magnitudes.
+	scale, ssq := 0.0, 1.0
+	for _, v := range x {
+		if v == 0 {
+			continue
+		}
+		a := math.Abs(v)
+		if scale < a {
+			ssq = 1 + ssq*(scale/a)*(scale/a)
+			scale = a
+		} else {
+			ssq += (a / scale) * (a / scale)
+		}
+	}
+	return scale * math.Sqrt(ssq)
+}
+
+// jacobiTol is the relative column non-orthogonality below which the Jacobi sweeps stop.
+const jacobiTol = 1e-15
+
+// jacobiSVD computes the singular value decomposition A = U S V^T of the n x n
+// column-major matrix a. On return s[0:n] holds the singular values in decreasing order,
+// a holds U (a column whose singular value is zero is left zero) and v (n x n,
+// column-major) holds V. It reports false if the sweeps did not converge.
+func jacobiSVD(a []float64, n int, s, v []float64) bool {
+	_ = a[n*n-1]
+	_ = v[n*n-1]
+	_ = s[n-1]
+	for i := range v[:n*n] {
+		v[i] = 0
+	}
+	for i := range n {
+		v[i*n+i] = 1
+	}
+	converged := false
+	for sweep := 0; sweep < 80 && !converged; sweep++ {
+		converged = true
+		for p := 0; p < n-1; p++ {
+			ap := a[p*n : (p+1)*n]
+			for q := p + 1; q < n; q++ {
+				aq := a[q*n : (q+1)*n]
+				var alpha, beta, gamma float64
+				for i, x := range ap {
+					y := aq[i]
+					alpha += x * x
+					beta += y * y
+					gamma += x * y
+				}
+				if gamma == 0 || math.Abs(gamma) <= jacobiTol*math.Sqrt(alpha)*math.Sqrt(beta) {
+					continue
+				}
+				converged = false
+				// Rotation that makes columns p and q orthogonal: t is the smaller root
+				// of t^2 + 2 zeta t - 1 = 0.
+				zeta := (beta - alpha) / (2 * gamma)
+				t := math.Copysign(1, zeta) / (math.Abs(zeta) + math.Hypot(1, zeta))
+				c := 1 / math.Hypot(1, t)
+				sn := c * t
+				rotate(ap, aq, c, sn)
+				rotate(v[p*n:(p+1)*n], v[q*n:(q+1)*n], c, sn)
+			}
+		}
+	}
+	for k := range n {
+		s[k] = norm2(a[k*n : (k+1)*n])
+	}
+	// Sort decreasing (selection sort: n is small), moving the columns of U and V.
+	for i := range n {
+		big := i
+		for k := i + 1; k < n; k++ {
+			if s[k] > s[big] {
+				big = k
+			}
+		}
+		if big != i {
+			s[i], s[big] = s[big], s[i]
+			swapCols(a, n, i, big)
+			swapCols(v, n, i, big)
+		}
+		if s[i] > 0 {
+			inv := 1 / s[i]
+			for k := range n {
+				a[i*n+k] *= inv
+			}
+		}
+	}
+	return converged
+}
+
+func rotate(x, y []float64, c, s float64) {
+	y = y[:len(x)]
+	for i, a := range x {
+		b := y[i]
+		x[i] = c*a - s*b
+		y[i] = s*a + c*b
+	}
+}
+
+func swapCols(a []float64, n, i, j int) {
+	ci, cj := a[i*n:(i+1)*n], a[j*n:(j+1)*n]
+	for k := range n {
+		ci[k], cj[k] = cj[k], ci[k]
+	}
+}
