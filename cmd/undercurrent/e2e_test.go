@@ -676,3 +676,42 @@ func TestE2ERealBaseStation(t *testing.T) {
 	t.Logf("variation over the survey: east %.2f, north %.2f, up %.2f nT; rms %.3g nT raw, %.3g nT corrected",
 		hi[0]-lo[0], hi[1]-lo[1], hi[2]-lo[2], raw.Groups[0].RMS, corrected.Groups[0].RMS)
 }
+
+// TestE2ETilt: the single-line survey with the sensor carried facing along
+// each traverse and swaying by up to 10 degrees; the log is in the sensor
+// frame with roll, pitch and yaw. locate turns it to east-north-up
+// (calibrate.Tilt) and recovers the line within its uncertainty.
+func TestE2ETilt(t *testing.T) {
+	sc, _ := scenario(t, "single-line.toml")
+	sc.Sensor.Attitude, sc.Sensor.Sway = "walking", 10
+	if err := sc.Validate(); err != nil {
+		t.Fatal(err)
+	}
+	s, err := simulate.Simulate(sc)
+	if err != nil {
+		t.Fatal(err)
+	}
+	log := filepath.Join(t.TempDir(), "walking.csv")
+	if err := ingest.WriteSamples(log, s); err != nil {
+		t.Fatal(err)
+	}
+	back, err := ingest.ReadSamples(log)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if back.Frame != ingest.FrameSensor || back.Roll == nil {
+		t.Fatalf("the log read back is in frame %v with roll %v: the sensor frame was lost", back.Frame, back.Roll != nil)
+	}
+	var doc resultDoc
+	if err := json.Unmarshal([]byte(mustCLI(t, "locate", "--json", "--group-by", "group", "--reference-z", "0", log)), &doc); err != nil {
+		t.Fatal(err)
+	}
+	truth := crossingsByLine(sc)
+	for _, g := range doc.Groups {
+		if len(g.Sources) != 1 {
+			t.Errorf("%s: %d sources, want 1", g.Key, len(g.Sources))
+			continue
+		}
+		checkCrossing(t, g.Key, g.Sources[0], truth[g.Key][0], 0, 0)
+	}
+}

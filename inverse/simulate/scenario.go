@@ -87,6 +87,17 @@ type Sensor struct {
 	// Matrix is the soft-iron matrix applied to the true field; nil means
 	// the identity. Rows are output axes.
 	Matrix *[3][3]float64 `toml:"matrix"`
+	// Attitude is how the sensor is held. "" or "level": its axes are
+	// east, north and up. "walking": it faces along the survey line (body
+	// axes x forward, y right, z down) and sways as it is carried; the log
+	// then holds the field in the sensor frame with roll, pitch and yaw
+	// columns (aerospace Z-Y-X convention, see attitude.go), for the tilt
+	// correction of the calibrate package. Offset and Matrix act in the
+	// sensor frame either way.
+	Attitude string `toml:"attitude"`
+	// Sway is the amplitude of the walking sway in roll, degrees (pitch
+	// sways by 0.7 and heading by 0.5 of it).
+	Sway float64 `toml:"sway_deg"`
 }
 
 // Survey is where the sensor goes: traverses across a route, or a grid of
@@ -300,6 +311,17 @@ func (sc *Scenario) validateSensor() error {
 	}
 	if s.Noise < 0 {
 		return sc.errAt("sensor", 0, "noise_nt", "noise %g nT must be >= 0", s.Noise)
+	}
+	switch s.Attitude {
+	case "", "level", "walking":
+	default:
+		return sc.errAt("sensor", 0, "attitude", "unknown attitude %q: want \"level\" or \"walking\"", s.Attitude)
+	}
+	if !finite(s.Sway) || s.Sway < 0 || s.Sway > 45 {
+		return sc.errAt("sensor", 0, "sway_deg", "sway %g degrees must be in [0, 45]", s.Sway)
+	}
+	if s.Sway > 0 && s.Attitude != "walking" {
+		return sc.errAt("sensor", 0, "sway_deg", "sway needs attitude = \"walking\"")
 	}
 	if !finite(s.Offset[:]...) {
 		return sc.errAt("sensor", 0, "offset_nt", "offset must be finite")

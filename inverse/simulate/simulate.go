@@ -133,7 +133,8 @@ func (sc *Scenario) Rows() int {
 
 // Simulate forward-models the survey log of a checked scenario: time (Unix
 // seconds), position (m ENU, sensor height above ground at up = 0), field
-// (nT ENU, sensor axes aligned with east, north, up) and the survey line in
+// (nT; east, north, up for a level sensor, the sensor's body axes with
+// roll, pitch and yaw columns for a walking one) and the survey line in
 // the group column. Samples.Origin is set when the scenario is
 // geo-referenced, and Samples.Meta records the scenario ("scenario", "site",
 // "seed", "simulated"). The same scenario gives the same log every time.
@@ -155,6 +156,11 @@ func Simulate(sc *Scenario) (*ingest.Samples, error) {
 	if o := sc.Origin; o != nil {
 		s.Origin = &ingest.Geodetic{Lat: o.Lat, Lon: o.Lon, H: o.Height}
 	}
+	walking := sc.Sensor.Attitude == "walking"
+	if walking {
+		s.Frame = ingest.FrameSensor
+		s.Roll, s.Pitch, s.Yaw = make([]float64, n), make([]float64, n), make([]float64, n)
+	}
 	srcs := sc.sources()
 	sen := sc.Sensor
 	// Each line has its own noise stream, seeded from the scenario's seed
@@ -175,13 +181,18 @@ func Simulate(sc *Scenario) (*ingest.Samples, error) {
 				}
 				b = [3]float64{b[0] + w*f[0], b[1] + w*f[1], b[2] + w*f[2]}
 			}
+			j := sp.start + k
+			if walking {
+				roll, pitch, yaw := sc.attitude(li, t-sp.t0)
+				b = enuToBody(b, roll, pitch, yaw)
+				s.Roll[j], s.Pitch[j], s.Yaw[j] = roll, pitch, yaw
+			}
 			if sen.Noise > 0 {
 				for i := range b {
 					b[i] += sen.Noise * rng.NormFloat64()
 				}
 			}
 			b = sen.distort(b)
-			j := sp.start + k
 			s.Time[j] = t
 			s.X[j], s.Y[j], s.Z[j] = r[0], r[1], r[2]
 			s.Bx[j], s.By[j], s.Bz[j] = b[0], b[1], b[2]
