@@ -30,6 +30,10 @@
 //	reading = M (b + noise) + offset
 //
 // which is the hard- and soft-iron model the calibrate package inverts.
+// With attitude = "walking" the field is first expressed in the axes of a
+// sensor facing along the survey line and swaying (aerospace Z-Y-X roll,
+// pitch and yaw, logged beside it), so that the calibrate package's tilt
+// correction has something to undo.
 //
 // A polyline may carry a different current on each segment. Current that
 // "leaves" the conductor at a vertex is not given a return path: the step is
@@ -65,6 +69,8 @@
 //	sample_rate_hz = 10               # or give survey.sample_spacing_m
 //	offset_nt = [0, 0, 0]             # optional hard-iron offset
 //	matrix = [[1,0,0],[0,1,0],[0,0,1]]  # optional soft-iron matrix
+//	attitude = "walking"              # optional: log in the sensor frame,
+//	sway_deg = 5                      #   facing along the line, swaying
 //
 //	[survey]
 //	pattern = "traverses"             # or "grid"
