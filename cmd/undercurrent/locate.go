@@ -660,10 +660,11 @@ func checkOutDir(dir string, keep []string) error {
 // writes and keep, is replaced). On any error nothing is left behind and
 // dir is as it was.
 func stageDir(dir string, keep []string, fill func(tmp string) error) (err error) {
+	dir = filepath.Clean(dir) // "results/" renames as "results"
 	if err := checkOutDir(dir, keep); err != nil {
 		return err
 	}
-	parent := filepath.Dir(filepath.Clean(dir))
+	parent := filepath.Dir(dir)
 	if err := os.MkdirAll(parent, 0o755); err != nil {
 		return err
 	}

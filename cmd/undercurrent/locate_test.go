@@ -156,9 +156,10 @@ func TestLocateOutputs(t *testing.T) {
 	if n := strings.Count(string(csv), ",T0"); n != 7 {
 		t.Errorf("results.csv has %d traverse rows, want 7:\n%s", n, csv)
 	}
-	// Run again without grouping: the directory is replaced, not merged.
+	// Run again without grouping (naming the directory with a trailing
+	// slash): the directory is replaced, not merged.
 	before, _ := os.Stat(filepath.Join(out, "results.json"))
-	summary := mustCLI(t, "locate", "-o", out, log)
+	summary := mustCLI(t, "locate", "-o", out+string(filepath.Separator), log)
 	if !strings.Contains(summary, "fitted 1 group") || !strings.Contains(summary, "results in "+out) {
 		t.Errorf("summary:\n%s", summary)
 	}
