@@ -20,11 +20,7 @@ func covariance(J mat.Matrix) (cov *mat.SymDense, unresolved []bool, err error) 
 	if m < n {
 		return nil, nil, errors.New("inverse: fewer readings than parameters")
 	}
-	// Column-major copy of J, scaled to unit column norms.
-	a := make([]float64, m*n+n+3*n*n)
-	tau, rf, v := a[m*n:m*n+n], a[m*n+n:m*n+n+n*n], a[m*n+n+n*n:m*n+n+2*n*n]
-	sv := a[m*n+n+2*n*n : m*n+n+2*n*n+n]
-	a = a[:m*n]
+	a := make([]float64, m*n)
 	if jd, ok := J.(*mat.Dense); ok {
 		raw := jd.RawMatrix()
 		for i := range m {
@@ -40,6 +36,18 @@ func covariance(J mat.Matrix) (cov *mat.SymDense, unresolved []bool, err error) 
 			}
 		}
 	}
+	return covarianceCols(a, m, n)
+}
+
+// covarianceCols is covariance for the m x n column-major Jacobian a, which it
+// overwrites.
+func covarianceCols(a []float64, m, n int) (cov *mat.SymDense, unresolved []bool, err error) {
+	if m < n {
+		return nil, nil, errors.New("inverse: fewer readings than parameters")
+	}
+	ws := make([]float64, n+3*n*n+n)
+	tau, rf, v, sv := ws[:n], ws[n:n+n*n], ws[n+n*n:n+2*n*n], ws[n+2*n*n:n+2*n*n+n]
+	c := ws[n+2*n*n+n:]
 	d := make([]float64, n)
 	for j := range n {
 		col := a[j*m : (j+1)*m]
@@ -67,7 +75,6 @@ func covariance(J mat.Matrix) (cov *mat.SymDense, unresolved []bool, err error) 
 		return nil, nil, errors.New("inverse: singular value decomposition failed")
 	}
 	unresolved = make([]bool, n)
-	c := make([]float64, n*n)
 	for k, s := range sv {
 		vk := v[k*n : (k+1)*n]
 		if s <= rankTol*sv[0] {

@@ -51,7 +51,7 @@ func FitLines(p *Problem, set *Settings) (*Result, error) {
 	if sv.extent == 0 {
 		return nil, errors.New("inverse: all readings share one horizontal position; a line cannot be located from them")
 	}
-	if a := anomaly(sv.y, len(sv.pts), sv.nrhs); norm(a[peak(a)]) == 0 {
+	if a := sv.anomaly(); norm(a[peak(a)]) == 0 {
 		return nil, errors.New("inverse: the readings show no anomaly (the field is the same everywhere): nothing to locate")
 	}
 	if sv.single && s.Background == BackgroundGradient {
@@ -139,7 +139,12 @@ func (f *fitter) holds() (holdAz, holdDip bool, az, dip float64) {
 
 // seedsFromData proposes single-line seeds from the anomaly in data rows d.
 func (f *fitter) seedsFromData(d []float64) []seed {
-	a := anomaly(d, len(f.sv.pts), f.sv.nrhs)
+	var a [][3]float64
+	if &d[0] == &f.sv.y[0] {
+		a = f.sv.anomaly()
+	} else {
+		a = anomaly(d, len(f.sv.pts), f.sv.nrhs)
+	}
 	holdAz, _, az, _ := f.holds()
 	azs := []float64{az}
 	if !holdAz {
@@ -269,15 +274,18 @@ func (f *fitter) bestOf(starts []start, quick bool) (*candidate, error) {
 			continue
 		}
 		agree := best != nil && math.Abs(res.rss-best.rss) <= 1e-8*best.rss
-		if quick && res.status.Converged() && !st.sp.atBound(res.x) {
+		clear := res.status.Converged() && !st.sp.atBound(res.x)
+		if quick && clear {
 			agree = true
 		}
 		// A fit that explains the readings to their noise level cannot be bettered
 		// materially by another start.
-		if floor := f.noiseFloor(); floor > 0 && res.status.Converged() && !st.sp.atBound(res.x) {
-			n, k := st.sp.m*st.sp.nrhs, st.sp.nparams()+st.sp.q*st.sp.nrhs
-			if n > k && math.Sqrt(res.rss/float64(n-k)) <= 1.2*floor {
-				agree = true
+		if !agree && clear {
+			if floor := f.noiseFloor(); floor > 0 {
+				n, k := st.sp.m*st.sp.nrhs, st.sp.nparams()+st.sp.q*st.sp.nrhs
+				if n > k && math.Sqrt(res.rss/float64(n-k)) <= 1.2*floor {
+					agree = true
+				}
 			}
 		}
 		if best == nil || res.rss < best.rss {

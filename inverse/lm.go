@@ -94,7 +94,7 @@ func levmar(p *lmProblem, x0 []float64, set lmSettings) (*lmResult, error) {
 	qtrBuf, betaBuf := take(n), take(n)
 	rt, jp := take(m), take(m)
 	aug, tau := take(m*(n+1)), take(n+1)
-	rBuf, vBuf, svBuf := take(n*n), take(n*n), take(n*n)[:n]
+	rBuf, vBuf, svBuf := take(n*n), take(n*n), take(n * n)[:n]
 	free := make([]int, 0, n)
 	var delta float64
 	status := MaxIterations

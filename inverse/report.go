@@ -60,11 +60,11 @@ func (f *fitter) summarise(c *candidate) (*summary, error) {
 		return nil, err
 	}
 	sp := c.sp
-	J, err := sp.fullJacobian(c.x)
+	J, rows, cols, err := sp.fullJacobianCols(c.x)
 	if err != nil {
 		return nil, err
 	}
-	cov0, unres, err := covariance(J)
+	cov0, unres, err := covarianceCols(J, rows, cols)
 	if err != nil {
 		return nil, err
 	}

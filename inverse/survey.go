@@ -3,7 +3,6 @@ package inverse
 import (
 	"math"
 	"math/cmplx"
-	"sort"
 )
 
 // survey holds what the seeding and reporting need to know about the readings.
@@ -18,7 +17,16 @@ type survey struct {
 	single   bool       // readings along one traverse
 	zmin     float64
 	zmean    float64
-	extent   float64 // largest horizontal distance from the centroid, m
+	extent   float64      // largest horizontal distance from the centroid, m
+	anom     [][3]float64 // anomaly of y, once computed
+}
+
+// anomaly returns the anomaly of the readings (see the function anomaly), computed once.
+func (sv *survey) anomaly() [][3]float64 {
+	if sv.anom == nil {
+		sv.anom = anomaly(sv.y, len(sv.pts), sv.nrhs)
+	}
+	return sv.anom
 }
 
 // singleTraverseRatio: readings whose RMS spread across their principal direction is
@@ -109,16 +117,65 @@ func anomaly(d []float64, n, nrhs int) [][3]float64 {
 }
 
 func median(v []float64) float64 {
-	s := append([]float64(nil), v...)
-	sort.Float64s(s)
-	n := len(s)
+	n := len(v)
 	if n == 0 {
 		return 0
 	}
+	s := append([]float64(nil), v...)
+	hi := selectKth(s, n/2)
 	if n%2 == 1 {
-		return s[n/2]
+		return hi
 	}
-	return 0.5 * (s[n/2-1] + s[n/2])
+	// The lower middle is the largest element of the part below n/2.
+	lo := s[0]
+	for _, x := range s[1 : n/2] {
+		lo = math.Max(lo, x)
+	}
+	return 0.5 * (lo + hi)
+}
+
+// selectKth reorders s so that s[k] is the value it would have if s were sorted, with
+// no larger value before it and no smaller after (Hoare's selection, median-of-three
+// pivots), and returns s[k]. NaNs are not expected.
+func selectKth(s []float64, k int) float64 {
+	lo, hi := 0, len(s)-1
+	for hi > lo {
+		mid := lo + (hi-lo)/2
+		// Median of three to s[mid].
+		if s[mid] < s[lo] {
+			s[mid], s[lo] = s[lo], s[mid]
+		}
+		if s[hi] < s[lo] {
+			s[hi], s[lo] = s[lo], s[hi]
+		}
+		if s[hi] < s[mid] {
+			s[hi], s[mid] = s[mid], s[hi]
+		}
+		pivot := s[mid]
+		i, j := lo, hi
+		for i <= j {
+			for s[i] < pivot {
+				i++
+			}
+			for s[j] > pivot {
+				j--
+			}
+			if i <= j {
+				s[i], s[j] = s[j], s[i]
+				i++
+				j--
+			}
+		}
+		switch {
+		case k <= j:
+			hi = j
+		case k >= i:
+			lo = i
+		default:
+			return s[k]
+		}
+	}
+	return s[k]
 }
 
 // seed is a starting geometry for one line: horizontal position of a point over it,

@@ -245,7 +245,7 @@ func (sp *separable) fillPhi(phi []float64, rs, cs int, pos []int) error {
 			if sp.w != nil {
 				v *= sp.w[row]
 			}
-			if !finite(v) {
+			if v-v != 0 { // NaN or infinite
 				return errors.New("inverse: a trial conductor passes through a sensor")
 			}
 			phi[row*rs+pc*cs] = v
@@ -542,30 +542,45 @@ func (sp *separable) problem() (*lmProblem, []float64) {
 // rows k*m + row, the parameter ordering of ParamNames. Uncertainties come from it
 // (DOMAIN.md: "from the full Jacobian at the solution, not from the reduced problem").
 func (sp *separable) fullJacobian(x []float64) (*mat.Dense, error) {
-	if err := sp.evaluate(x); err != nil {
+	a, rows, cols, err := sp.fullJacobianCols(x)
+	if err != nil {
 		return nil, err
 	}
-	np := sp.nparams()
-	nr, q, m := sp.nrhs, sp.q, sp.m
-	cols := np * nr
-	dblk := make([]float64, m*cols)
-	sp.dPhiC(dblk, np)
-	phi := make([]float64, m*q)
-	if err := sp.buildPhi(phi); err != nil {
-		return nil, err
-	}
-	J := mat.NewDense(m*nr, np+q*nr, nil)
-	for k := range nr {
-		for row := range m {
-			for p := range np {
-				J.Set(k*m+row, p, dblk[(p*nr+k)*m+row])
-			}
-			for j := range q {
-				J.Set(k*m+row, np+k*q+j, phi[row*q+j])
-			}
+	J := mat.NewDense(rows, cols, nil)
+	raw := J.RawMatrix()
+	for j := range cols {
+		for i, v := range a[j*rows : (j+1)*rows] {
+			raw.Data[i*raw.Stride+j] = v
 		}
 	}
 	return J, nil
+}
+
+// fullJacobianCols is fullJacobian in column-major storage: column j is
+// a[j*rows:(j+1)*rows].
+func (sp *separable) fullJacobianCols(x []float64) (a []float64, rows, cols int, err error) {
+	if err := sp.evaluate(x); err != nil {
+		return nil, 0, 0, err
+	}
+	np := sp.nparams()
+	nr, q, m := sp.nrhs, sp.q, sp.m
+	rows, cols = m*nr, np+q*nr
+	dblk := make([]float64, m*np*nr+m*q)
+	sp.dPhiC(dblk, np)
+	phi := dblk[m*np*nr:]
+	if err := sp.fillPhi(phi, 1, m, nil); err != nil {
+		return nil, 0, 0, err
+	}
+	a = make([]float64, rows*cols)
+	for k := range nr {
+		for p := range np {
+			copy(a[p*rows+k*m:p*rows+(k+1)*m], dblk[(p*nr+k)*m:(p*nr+k+1)*m])
+		}
+		for j := range q {
+			copy(a[(np+k*q+j)*rows+k*m:(np+k*q+j)*rows+(k+1)*m], phi[j*m:(j+1)*m])
+		}
+	}
+	return a, rows, cols, nil
 }
 
 // fullResiduals returns the unweighted residuals y - Phi c, m x nrhs row-major.
