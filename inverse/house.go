@@ -74,8 +74,9 @@ func houseApply(v []float64, tau float64, c []float64) {
 	s := c[0] + dotFrom1(v, c)
 	s *= tau
 	c[0] -= s
-	for i := 1; i < len(v); i++ {
-		c[i] -= s * v[i]
+	v, c = v[1:], c[1:len(v)]
+	for i, x := range v {
+		c[i] -= s * x
 	}
 }
 

@@ -43,6 +43,13 @@ func (f *fitter) reorder(c *candidate) error {
 		idx[i] = i
 	}
 	sort.SliceStable(idx, func(a, b int) bool { return mag[idx[a]] > mag[idx[b]] })
+	same := true
+	for i, j := range idx {
+		same = same && i == j
+	}
+	if same {
+		return nil
+	}
 	g := make([]lineGeom, nl)
 	for i, j := range idx {
 		g[i] = sp.geom[j]
@@ -115,6 +122,9 @@ func (f *fitter) summarise(c *candidate) (*summary, error) {
 	}
 	v := append([]float64(nil), su.v...)
 	for j := range su.v {
+		if !derivedReads(sp, j) {
+			continue // the reported line quantities do not depend on it: zero gradient
+		}
 		sd := math.Sqrt(math.Max(su.cov.At(j, j), 0))
 		h := 1e-4 * sd
 		if h == 0 || unres[j] {
@@ -134,8 +144,17 @@ func (f *fitter) summarise(c *candidate) (*summary, error) {
 		}
 	}
 	sigmaOf := func(i int) float64 {
-		g := mat.NewVecDense(len(su.v), grads[i])
-		return math.Sqrt(math.Max(mat.Inner(g, su.cov, g), 0))
+		g := grads[i]
+		var s float64
+		for a, ga := range g {
+			if ga == 0 {
+				continue
+			}
+			for b, gb := range g {
+				s += ga * su.cov.At(a, b) * gb
+			}
+		}
+		return math.Sqrt(math.Max(s, 0))
 	}
 	// Which parameters each line depends on (for identifiability).
 	off := 0
@@ -279,6 +298,21 @@ func quantityPeriod(i int) float64 {
 		return 360
 	}
 	return 0
+}
+
+// derivedReads reports whether deriveQuantities reads element j of the full parameter
+// vector: every line geometry parameter and line current, not the dipole positions nor
+// the dipole and background strengths.
+func derivedReads(sp *separable, j int) bool {
+	np, q, nl := sp.nparams(), sp.q, len(sp.geom)
+	off := 0
+	for _, g := range sp.geom {
+		off += g.nfree()
+	}
+	if j < np {
+		return j < off
+	}
+	return (j-np)%q < nl
 }
 
 // deriveQuantities maps a full parameter vector to the reported quantities of every

@@ -258,35 +258,41 @@ func (sp *separable) fillPhi(phi []float64, rs, cs int, pos []int) error {
 // weighted uniform background columns b_e, b_n, b_u (disjoint supports: every third
 // row), v <- v - sum_a b_a (b_a.v)/(b_a.b_a), and returns the coefficients (b_a.v)/(b_a.b_a).
 func (sp *separable) project(v []float64) [3]float64 {
-	var s [3]float64
-	v = v[:sp.m]
+	n := sp.m / 3
+	v = v[:3*n]
+	var s0, s1, s2 float64
 	w := sp.w
-	for i := 0; i < len(v); i += 3 {
-		if w == nil {
-			s[0] += v[i]
-			s[1] += v[i+1]
-			s[2] += v[i+2]
-		} else {
-			s[0] += w[i] * v[i]
-			s[1] += w[i+1] * v[i+1]
-			s[2] += w[i+2] * v[i+2]
+	if w == nil {
+		for i := range n {
+			t := v[3*i : 3*i+3 : 3*i+3]
+			s0 += t[0]
+			s1 += t[1]
+			s2 += t[2]
 		}
-	}
-	for a := range 3 {
-		s[a] /= sp.bn2[a]
-	}
-	for i := 0; i < len(v); i += 3 {
-		if w == nil {
-			v[i] -= s[0]
-			v[i+1] -= s[1]
-			v[i+2] -= s[2]
-		} else {
-			v[i] -= w[i] * s[0]
-			v[i+1] -= w[i+1] * s[1]
-			v[i+2] -= w[i+2] * s[2]
+		s0, s1, s2 = s0/sp.bn2[0], s1/sp.bn2[1], s2/sp.bn2[2]
+		for i := range n {
+			t := v[3*i : 3*i+3 : 3*i+3]
+			t[0] -= s0
+			t[1] -= s1
+			t[2] -= s2
 		}
+		return [3]float64{s0, s1, s2}
 	}
-	return s
+	w = w[:3*n]
+	for i := range n {
+		t, u := v[3*i:3*i+3:3*i+3], w[3*i:3*i+3:3*i+3]
+		s0 += u[0] * t[0]
+		s1 += u[1] * t[1]
+		s2 += u[2] * t[2]
+	}
+	s0, s1, s2 = s0/sp.bn2[0], s1/sp.bn2[1], s2/sp.bn2[2]
+	for i := range n {
+		t, u := v[3*i:3*i+3:3*i+3], w[3*i:3*i+3:3*i+3]
+		t[0] -= u[0] * s0
+		t[1] -= u[1] * s1
+		t[2] -= u[2] * s2
+	}
+	return [3]float64{s0, s1, s2}
 }
 
 // evaluate factors the basis at x and solves for the strengths.
