@@ -16,6 +16,9 @@ type lmProblem struct {
 	resid func(x, r []float64) error
 	// jac writes the m x n Jacobian dr/dx at x; r is r(x) as last computed there.
 	jac func(x, r []float64, j *mat.Dense) error
+	// jacCols, when set, is used instead of jac: it writes the Jacobian column-major
+	// (column k is jc[k*m:(k+1)*m]). lmResult.j is then nil.
+	jacCols func(x, r, jc []float64) error
 	// lower and upper bound x elementwise when non-nil (use +-Inf for free components).
 	lower, upper []float64
 }
@@ -86,7 +89,26 @@ func levmar(p *lmProblem, x0 []float64, set lmSettings) (*lmResult, error) {
 		return nil, errLMStart
 	}
 	res := &lmResult{nfev: 1}
-	J := mat.NewDense(m, n, nil)
+	var J *mat.Dense
+	if p.jacCols == nil {
+		J = mat.NewDense(m, n, nil)
+	}
+	jc := make([]float64, m*n) // the Jacobian, column-major
+	evalJac := func() error {
+		if p.jacCols != nil {
+			return p.jacCols(x, r, jc)
+		}
+		if err := p.jac(x, r, J); err != nil {
+			return err
+		}
+		raw := J.RawMatrix()
+		for i := range m {
+			for j, v := range raw.Data[i*raw.Stride : i*raw.Stride+n] {
+				jc[j*m+i] = v
+			}
+		}
+		return nil
+	}
 	// One allocation for every work vector of the iterations.
 	buf := make([]float64, 7*n+2*m+m*(n+1)+(n+1)+3*n*n)
 	take := func(k int) []float64 { s := buf[:k:k]; buf = buf[k:]; return s }
@@ -107,7 +129,7 @@ func levmar(p *lmProblem, x0 []float64, set lmSettings) (*lmResult, error) {
 			break
 		}
 		if !jacFresh {
-			if err := p.jac(x, r, J); err != nil {
+			if err := evalJac(); err != nil {
 				return nil, err
 			}
 			jacFresh = true
@@ -116,17 +138,9 @@ func levmar(p *lmProblem, x0 []float64, set lmSettings) (*lmResult, error) {
 		free = free[:0]
 		gmax := 0.0
 		rn := math.Sqrt(rss)
-		jd := J.RawMatrix()
-		for j := range cn2 {
-			cn2[j], grad[j] = 0, 0
-		}
-		for i := range m {
-			row := jd.Data[i*jd.Stride : i*jd.Stride+n]
-			ri := r[i]
-			for j, v := range row {
-				cn2[j] += v * v
-				grad[j] += v * ri
-			}
+		for j := range n {
+			col := jc[j*m : (j+1)*m]
+			cn2[j], grad[j] = dot2(col, col), dot2(col, r)
 		}
 		for j := range n {
 			cn, g := math.Sqrt(cn2[j]), grad[j]
@@ -166,9 +180,9 @@ func levmar(p *lmProblem, x0 []float64, set lmSettings) (*lmResult, error) {
 		nf := len(free)
 		a := aug[:m*(nf+1)]
 		for k, j := range free {
-			col, dj := a[k*m:(k+1)*m], diag[j]
-			for i := range m {
-				col[i] = jd.Data[i*jd.Stride+j] / dj
+			col, dj := a[k*m:(k+1)*m], 1/diag[j]
+			for i, v := range jc[j*m : (j+1)*m] {
+				col[i] = v * dj
 			}
 		}
 		copy(a[nf*m:], r)
@@ -250,13 +264,14 @@ func levmar(p *lmProblem, x0 []float64, set lmSettings) (*lmResult, error) {
 				dxn += (diag[j] * step[j]) * (diag[j] * step[j])
 			}
 			dxn = math.Sqrt(dxn)
-			for i := range m {
-				v := r[i]
-				jrow := jd.Data[i*jd.Stride : i*jd.Stride+n]
-				for j, jv := range jrow {
-					v += jv * step[j]
+			copy(jp, r)
+			for j, sj := range step {
+				if sj == 0 {
+					continue
 				}
-				jp[i] = v
+				for i, v := range jc[j*m : (j+1)*m] {
+					jp[i] += v * sj
+				}
 			}
 			pred := rss - sumSq(jp)
 			var rssT float64
@@ -321,7 +336,7 @@ func levmar(p *lmProblem, x0 []float64, set lmSettings) (*lmResult, error) {
 	}
 done:
 	if !jacFresh {
-		if err := p.jac(x, r, J); err != nil {
+		if err := evalJac(); err != nil {
 			return nil, err
 		}
 	}
@@ -387,6 +402,21 @@ func project(x, lower, upper []float64) {
 			x[j] = upper[j]
 		}
 	}
+}
+
+// dot2 returns a.b with two accumulators; len(b) >= len(a).
+func dot2(a, b []float64) float64 {
+	b = b[:len(a)]
+	var s0, s1 float64
+	i := 0
+	for ; i+1 < len(a); i += 2 {
+		s0 += a[i] * b[i]
+		s1 += a[i+1] * b[i+1]
+	}
+	if i < len(a) {
+		s0 += a[i] * b[i]
+	}
+	return s0 + s1
 }
 
 func sumSq(v []float64) float64 {

@@ -221,7 +221,7 @@ func (sp *separable) fillPhi(phi []float64, rs, cs int, pos []int) error {
 			}
 		}
 	}
-	if nb := sp.bg.columns(); nb > 0 {
+	if nb := sp.bg.columns(); nb > 0 && (pos == nil || nb > 3) {
 		bgc := Background{Origin: sp.org, Gradient: sp.bg == BackgroundGradient}
 		c0 := sp.bgCol()
 		for i, r := range sp.pts {
@@ -238,6 +238,26 @@ func (sp *separable) fillPhi(phi []float64, rs, cs int, pos []int) error {
 	for c := range sp.q {
 		pc := col(c)
 		if pc < 0 {
+			continue
+		}
+		if rs == 1 {
+			// Contiguous column.
+			v := phi[pc*cs : pc*cs+sp.m]
+			var bad float64
+			if sp.w != nil {
+				w := sp.w[:len(v)]
+				for i := range v {
+					v[i] *= w[i]
+					bad += v[i] - v[i]
+				}
+			} else {
+				for _, x := range v {
+					bad += x - x
+				}
+			}
+			if bad != 0 || bad != bad { // NaN or infinite somewhere
+				return errors.New("inverse: a trial conductor passes through a sensor")
+			}
 			continue
 		}
 		for row := range sp.m {
@@ -320,19 +340,28 @@ func (sp *separable) evaluate(x []float64) error {
 	if err := sp.fillPhi(sp.a, 1, m, sp.pos); err != nil {
 		return err
 	}
-	for row := range m {
-		w := sp.weight(row)
-		for k := range nr {
-			sp.qty[k*m+row] = sp.y[row*nr+k] * w
+	if nr == 1 && sp.w == nil {
+		copy(sp.qty, sp.y)
+	} else {
+		for row := range m {
+			w := sp.weight(row)
+			for k := range nr {
+				sp.qty[k*m+row] = sp.y[row*nr+k] * w
+			}
 		}
 	}
 	var rmax float64
 	var ybar [2][3]float64
 	if sp.uniform() {
-		sp.bn2 = [3]float64{}
-		for row := range m {
-			w := sp.weight(row)
-			sp.bn2[row%3] += w * w
+		n := float64(m / 3)
+		sp.bn2 = [3]float64{n, n, n}
+		if w := sp.w; w != nil {
+			sp.bn2 = [3]float64{}
+			for i := 0; i+2 < m; i += 3 {
+				sp.bn2[0] += w[i] * w[i]
+				sp.bn2[1] += w[i+1] * w[i+1]
+				sp.bn2[2] += w[i+2] * w[i+2]
+			}
 		}
 		for a := range 3 {
 			if !(sp.bn2[a] > 0) {
@@ -510,6 +539,24 @@ func (sp *separable) dPhiC(dst []float64, np int) {
 }
 
 func (sp *separable) jac(x, _ []float64, J *mat.Dense) error {
+	np := sp.nparams()
+	jc := make([]float64, sp.residLen()*np)
+	if err := sp.jacCols(x, nil, jc); err != nil {
+		return err
+	}
+	rows := sp.residLen()
+	raw := J.RawMatrix()
+	for p := range np {
+		for i, v := range jc[p*rows : (p+1)*rows] {
+			raw.Data[i*raw.Stride+p] = v
+		}
+	}
+	return nil
+}
+
+// jacCols writes Kaufman's Jacobian of the projected residual, column-major: column p
+// is jc[p*L:(p+1)*L], L = residLen().
+func (sp *separable) jacCols(x, _ []float64, jc []float64) error {
 	if err := sp.evaluate(x); err != nil {
 		return err
 	}
@@ -525,12 +572,12 @@ func (sp *separable) jac(x, _ []float64, J *mat.Dense) error {
 	}
 	houseApplyQT(sp.a, m, g, sp.tau, sp.dblk, cols)
 	mg := m - g
-	jd := J.RawMatrix()
+	rows := mg * nr
 	for k := range nr {
 		for p := range np {
-			src := sp.dblk[(p*nr+k)*m+g : (p*nr+k+1)*m]
-			for i, v := range src {
-				jd.Data[(k*mg+i)*jd.Stride+p] = -v
+			dst := jc[p*rows+k*mg : p*rows+(k+1)*mg]
+			for i, v := range sp.dblk[(p*nr+k)*m+g : (p*nr+k+1)*m] {
+				dst[i] = -v
 			}
 		}
 	}
@@ -540,7 +587,7 @@ func (sp *separable) jac(x, _ []float64, J *mat.Dense) error {
 // problem wraps the separable model for the LM engine.
 func (sp *separable) problem() (*lmProblem, []float64) {
 	x, lo, hi := sp.pack()
-	return &lmProblem{m: sp.residLen(), n: len(x), resid: sp.resid, jac: sp.jac, lower: lo, upper: hi}, x
+	return &lmProblem{m: sp.residLen(), n: len(x), resid: sp.resid, jac: sp.jac, jacCols: sp.jacCols, lower: lo, upper: hi}, x
 }
 
 // fullJacobian returns the weighted Jacobian of the full model with respect to all
