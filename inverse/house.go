@@ -29,9 +29,43 @@ func houseQR(a []float64, m, n int, tau []float64) {
 		if tau[j] == 0 {
 			continue
 		}
-		for k := j + 1; k < n; k++ {
+		k := j + 1
+		for ; k+1 < n; k += 2 {
+			houseApply2(col, tau[j], a[k*m+j:(k+1)*m], a[(k+1)*m+j:(k+2)*m])
+		}
+		if k < n {
 			houseApply(col, tau[j], a[k*m+j:(k+1)*m])
 		}
+	}
+}
+
+// houseApply2 is houseApply on two columns at once (one pass over v for both dot
+// products).
+func houseApply2(v []float64, tau float64, c, d []float64) {
+	c, d = c[:len(v)], d[:len(v)]
+	var s0, s1, t0, t1 float64
+	i := 1
+	for ; i+1 < len(v); i += 2 {
+		v0, v1 := v[i], v[i+1]
+		s0 += v0 * c[i]
+		s1 += v1 * c[i+1]
+		t0 += v0 * d[i]
+		t1 += v1 * d[i+1]
+	}
+	if i < len(v) {
+		s0 += v[i] * c[i]
+		t0 += v[i] * d[i]
+	}
+	s := tau * (c[0] + (s0 + s1))
+	t := tau * (d[0] + (t0 + t1))
+	c[0] -= s
+	d[0] -= t
+	v, c, d = v[1:], c[1:], d[1:]
+	d = d[:len(v)]
+	c = c[:len(v)]
+	for i, x := range v {
+		c[i] -= s * x
+		d[i] -= t * x
 	}
 }
 
