@@ -32,7 +32,7 @@ type csvReader struct {
 	used    []usedCol
 	ops     []int // per source column: canonical index, opSkip or opGroup
 	opScale []float64
-	fast    bool  // lines may take fastLine
+	fast    bool // lines may take fastLine
 	pending chan chan csvResult
 	jobs    chan csvJob
 	done    chan struct{}

@@ -285,3 +285,29 @@ func TestCSVGeodetic(t *testing.T) {
 		t.Errorf("mean origin: mean position (%g, %g), want (0, 0)", mx, my)
 	}
 }
+
+// TestCSVGroupsSurviveLaterReads: Samples must own its strings (Arrow
+// strings alias batch memory), so a first read stays intact while later
+// reads run.
+func TestCSVGroupsSurviveLaterReads(t *testing.T) {
+	var b strings.Builder
+	b.WriteString("time,bx,by,bz,group\n")
+	for i := 0; i < 60000; i++ {
+		fmt.Fprintf(&b, "%d,1,2,3,T%02d\n", i, 1+i/2000)
+	}
+	p := writeFile(t, "groups.csv", b.String())
+	first, err := ReadSamples(p)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for k := 0; k < 3; k++ {
+		if _, err := ReadSamples(p); err != nil {
+			t.Fatal(err)
+		}
+	}
+	for i, g := range first.Group {
+		if want := fmt.Sprintf("T%02d", 1+i/2000); g != want {
+			t.Fatalf("row %d: group %q, want %q", i, g, want)
+		}
+	}
+}

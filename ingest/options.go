@@ -88,7 +88,7 @@ func newConfig(opts []Option) *config {
 		batchRows:  64 * 1024,
 		chunkBytes: 1 << 20,
 		workers:    runtime.GOMAXPROCS(0),
-		mem:        defaultAllocator,
+		mem:        memory.DefaultAllocator,
 	}
 	for _, o := range opts {
 		o(c)
@@ -221,8 +221,7 @@ func WithBatchSize(rows int) Option {
 // WithWorkers sets the number of CSV parser goroutines (default GOMAXPROCS).
 func WithWorkers(n int) Option { return func(c *config) { c.workers = n } }
 
-// WithAllocator sets the Arrow memory allocator for the record batches
-// (default: a pool that recycles the buffers of released batches).
+// WithAllocator sets the Arrow memory allocator for the record batches.
 func WithAllocator(mem memory.Allocator) Option { return func(c *config) { c.mem = mem } }
 
 // withChunkBytes sets the CSV parse chunk size (tests use small chunks to

@@ -108,7 +108,8 @@ func Collect(r Reader) (*Samples, error) {
 			col := rec.Column(i)
 			if c == cGroup {
 				for j := 0; j < col.Len(); j++ {
-					s.Group = append(s.Group, col.ValueStr(j))
+					// Clone: Arrow strings alias the batch's buffer.
+					s.Group = append(s.Group, strings.Clone(col.ValueStr(j)))
 				}
 				continue
 			}
