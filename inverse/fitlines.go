@@ -13,7 +13,7 @@ import (
 const polishKeep = 3
 
 // roughIter bounds the iterations of an intermediate fit that only seeds the next.
-const roughIter = 12
+const roughIter = 5
 
 // candidate is one converged (or screened) K-line fit.
 type candidate struct {

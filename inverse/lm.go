@@ -27,6 +27,11 @@ type lmSettings struct {
 	maxIter          int
 	ftol, xtol, gtol float64
 	factor           float64 // initial trust radius relative to ||D x0|| (default 1)
+	// chi2Tol, when positive, also ends the fit when a step's actual and predicted
+	// reductions of the sum of squares are both below chi2Tol times the noise variance
+	// (noiseVar, or RSS/(m - n) when that is zero): a change of chi-square this small
+	// leaves the parameters within about sqrt(2 chi2Tol) standard errors of the minimum.
+	chi2Tol, noiseVar float64
 }
 
 func (s lmSettings) withDefaults() lmSettings {
@@ -303,6 +308,14 @@ func levmar(p *lmProblem, x0 []float64, set lmSettings) (*lmResult, error) {
 			// MINPACK's relative-reduction test, applied whether or not the step is taken.
 			// The actual reduction is compared against rounding noise when that is larger.
 			fconv := math.Abs(actRel) <= math.Max(set.ftol, fnoise) && predRel <= set.ftol && rho <= 2
+			if set.chi2Tol > 0 && ok && !fconv && m > n {
+				s2 := set.noiseVar
+				if s2 <= 0 {
+					s2 = rss / float64(m-n)
+				}
+				tol := set.chi2Tol * s2
+				fconv = math.Abs(rss-rssT) <= tol && pred <= tol && rho <= 2
+			}
 			if rho > 1e-4 {
 				accepted = true
 				copy(x, xt)

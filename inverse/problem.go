@@ -142,7 +142,9 @@ type Settings struct {
 	// FTol, XTol and GTol are the relative convergence tolerances (sum of squares,
 	// step, gradient); 0 means 1e-10, 1e-10 and 1e-12. A relative reduction of 1e-10
 	// of the sum of squares of N readings leaves the parameters within about
-	// sqrt(1e-10 N) standard errors of the minimum, far inside their uncertainty.
+	// sqrt(1e-10 N) standard errors of the minimum, far inside their uncertainty. A fit
+	// also stops when a step changes chi-square by less than 1e-4 (within about 0.015
+	// standard errors of the minimum): converged to the noise floor.
 	FTol, XTol, GTol float64
 }
 
@@ -173,8 +175,14 @@ func (s *Settings) orDefault() Settings {
 }
 
 func (s *Settings) lm() lmSettings {
-	return lmSettings{maxIter: s.MaxIter, ftol: s.FTol, xtol: s.XTol, gtol: s.GTol}
+	return lmSettings{maxIter: s.MaxIter, ftol: s.FTol, xtol: s.XTol, gtol: s.GTol, chi2Tol: chi2Tol}
 }
+
+// chi2Tol ends a line fit when a step changes chi-square by less than this: the
+// parameters are then within about 0.015 standard errors of the minimum, far inside
+// their uncertainty, and further iterations would only polish digits that the noise
+// does not support.
+const chi2Tol = 1e-4
 
 // Identifiable records, per reported quantity, whether the data determine it. A false
 // entry means the value was held or is not resolved; its sigma is then zero and must not
