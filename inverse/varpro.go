@@ -72,7 +72,7 @@ type separable struct {
 	g                 int          // columns of a
 	bn2               [3]float64   // squared norms of the weighted uniform background columns
 	bbar              [][3]float64 // per column of a: its projection coefficients on them
-	dblk              []float64
+	dblk, full        []float64
 	at                []float64 // x of the cached state
 	ok                bool
 }
@@ -221,7 +221,19 @@ func (sp *separable) fillPhi(phi []float64, rs, cs int, pos []int) error {
 			}
 		}
 	}
-	if nb := sp.bg.columns(); nb > 0 && (pos == nil || nb > 3) {
+	if nb := sp.bg.columns(); nb == 3 && pos == nil {
+		// Uniform background: the basis is the identity per axis (Background.Basis).
+		c0 := sp.bgCol()
+		for row := range sp.m {
+			for k := range 3 {
+				v := 0.0
+				if row%3 == k {
+					v = 1
+				}
+				phi[row*rs+(c0+k)*cs] = v
+			}
+		}
+	} else if nb > 0 && (pos == nil || nb > 3) {
 		bgc := Background{Origin: sp.org, Gradient: sp.bg == BackgroundGradient}
 		c0 := sp.bgCol()
 		for i, r := range sp.pts {
@@ -476,6 +488,11 @@ func (sp *separable) dPhiC(dst []float64, np int) {
 				out[k][h] = dst[((p+k)*nr+h)*m : ((p+k)*nr+h+1)*m]
 			}
 		}
+		if nr == 1 && w == nil {
+			sp.dLineFast(out[:nd], dirs[:nd], uxv[:nd], isDir[:nd], u, p0, cl[0])
+			p += g.nfree()
+			continue
+		}
 		for i, r := range sp.pts {
 			// B = K (u x d)/q, d = r - p0, q = |d|^2 - (d.u)^2, rho = d - (d.u) u.
 			// dB/dp0 . v = -K (u x v / q - 2 (rho.v)(u x d)/q^2)
@@ -535,6 +552,49 @@ func (sp *separable) dPhiC(dst []float64, np int) {
 			}
 		}
 		p += 3
+	}
+}
+
+// dLineFast is the line part of dPhiC for one right-hand side without weights: column k
+// of out receives c dB/dtheta_k at every reading, the point parameters first (their
+// u x v precomputed in uxv), then the direction parameters.
+func (sp *separable) dLineFast(out [][2][]float64, dirs, uxv [][3]float64, isDir []bool, u, p0 [3]float64, c float64) {
+	nd := len(dirs)
+	var cols [4][]float64
+	for k := range nd {
+		cols[k] = out[k][0][:3*len(sp.pts)]
+	}
+	// The two point parameters always come first; the direction ones follow.
+	np0 := 0
+	for np0 < nd && !isDir[np0] {
+		np0++
+	}
+	kc := c * nT * k2pi
+	for i, r := range sp.pts {
+		d0, d1, d2 := r[0]-p0[0], r[1]-p0[1], r[2]-p0[2]
+		du := d0*u[0] + d1*u[1] + d2*u[2]
+		r0, r1, r2 := d0-du*u[0], d1-du*u[1], d2-du*u[2]
+		iq := 1 / (r0*r0 + r1*r1 + r2*r2)
+		kq := kc * iq
+		kq2 := 2 * kq * iq
+		x0, x1, x2 := u[1]*d2-u[2]*d1, u[2]*d0-u[0]*d2, u[0]*d1-u[1]*d0
+		row := 3 * i
+		for k := 0; k < np0; k++ {
+			v, cu := &dirs[k], &uxv[k]
+			t := kq2 * (r0*v[0] + r1*v[1] + r2*v[2])
+			o := cols[k][row : row+3 : row+3]
+			o[0] = t*x0 - kq*cu[0]
+			o[1] = t*x1 - kq*cu[1]
+			o[2] = t*x2 - kq*cu[2]
+		}
+		for k := np0; k < nd; k++ {
+			v := &dirs[k]
+			t := kq2 * du * (d0*v[0] + d1*v[1] + d2*v[2])
+			o := cols[k][row : row+3 : row+3]
+			o[0] = kq*(v[1]*d2-v[2]*d1) + t*x0
+			o[1] = kq*(v[2]*d0-v[0]*d2) + t*x1
+			o[2] = kq*(v[0]*d1-v[1]*d0) + t*x2
+		}
 	}
 }
 
@@ -618,13 +678,22 @@ func (sp *separable) fullJacobianCols(x []float64) (a []float64, rows, cols int,
 	np := sp.nparams()
 	nr, q, m := sp.nrhs, sp.q, sp.m
 	rows, cols = m*nr, np+q*nr
-	dblk := make([]float64, m*np*nr+m*q)
+	a = make([]float64, rows*cols)
+	if nr == 1 {
+		// The layouts coincide: derivative columns, then the basis.
+		sp.dPhiC(a[:m*np], np)
+		if err := sp.fillPhi(a[m*np:], 1, m, nil); err != nil {
+			return nil, 0, 0, err
+		}
+		return a, rows, cols, nil
+	}
+	sp.full = grow(sp.full, m*np*nr+m*q)
+	dblk := sp.full
 	sp.dPhiC(dblk, np)
 	phi := dblk[m*np*nr:]
 	if err := sp.fillPhi(phi, 1, m, nil); err != nil {
 		return nil, 0, 0, err
 	}
-	a = make([]float64, rows*cols)
 	for k := range nr {
 		for p := range np {
 			copy(a[p*rows+k*m:p*rows+(k+1)*m], dblk[(p*nr+k)*m:(p*nr+k+1)*m])
@@ -644,20 +713,20 @@ func (sp *separable) fullResiduals(x []float64) ([]float64, error) {
 	m, q, nr := sp.m, sp.q, sp.nrhs
 	w := sp.w
 	sp.w = nil
-	phi := make([]float64, m*q)
-	err := sp.buildPhi(phi)
+	sp.full = grow(sp.full, m*q)
+	phi := sp.full // column-major
+	err := sp.fillPhi(phi, 1, m, nil)
 	sp.w = w
 	if err != nil {
 		return nil, err
 	}
-	res := make([]float64, m*nr)
-	for row := range m {
-		for k := range nr {
-			v := sp.y[row*nr+k]
-			for j := range q {
-				v -= phi[row*q+j] * sp.coef[j*nr+k]
+	res := append([]float64(nil), sp.y...)
+	for k := range nr {
+		for j := range q {
+			c := sp.coef[j*nr+k]
+			for row, v := range phi[j*m : (j+1)*m] {
+				res[row*nr+k] -= v * c
 			}
-			res[row*nr+k] = v
 		}
 	}
 	return res, nil
