@@ -239,10 +239,10 @@ func (sv *survey) azimuthCandidates(a [][3]float64) []float64 {
 
 // peak returns the index of the largest anomaly magnitude.
 func peak(a [][3]float64) int {
-	ip := 0
+	ip, best := 0, dot(a[0], a[0])
 	for i := range a {
-		if norm(a[i]) > norm(a[ip]) {
-			ip = i
+		if m := dot(a[i], a[i]); m > best {
+			ip, best = i, m
 		}
 	}
 	return ip
