@@ -138,3 +138,58 @@ func ExampleInspect() {
 	// 4 1 1
 	// field: median |B| is 0.04981 nT, far from an Earth field of about 20000-70000 nT; if these are total-field readings the columns are probably in mT (try units bx=mT,by=mT,bz=mT)
 }
+
+// WriteReader streams one format into another without holding the log in
+// memory; a round trip keeps every value.
+func ExampleWriteReader() {
+	dir, _ := os.MkdirTemp("", "example")
+	defer os.RemoveAll(dir)
+	in := filepath.Join(dir, "kestrel-moor.csv")
+	os.WriteFile(in, []byte("time,x,y,z,bx,by,bz\n0,0,0,0.3,0.1,19876.25,-45210.473\n"), 0o644)
+
+	r, err := ingest.Open(in)
+	if err != nil {
+		log.Fatal(err)
+	}
+	defer r.Release()
+	out := filepath.Join(dir, "kestrel-moor.arrows")
+	if err := ingest.WriteReader(out, r); err != nil {
+		log.Fatal(err)
+	}
+	s, err := ingest.ReadSamples(out)
+	if err != nil {
+		log.Fatal(err)
+	}
+	fmt.Println(s.Bz[0] == -45210.473, s.Bx[0] == 0.1)
+	// Output:
+	// true true
+}
+
+// Collect gathers the rest of a stream into plain columns.
+func ExampleCollect() {
+	s := &ingest.Samples{Time: []float64{0, 1, 2}, Bx: []float64{1, 2, 3}, By: []float64{0, 0, 0}, Bz: []float64{-1, -1, -1},
+		Group: []string{"T01", "T01", "T02"}}
+	r, err := ingest.NewSamplesReader(s, 2, nil) // batches of two rows
+	if err != nil {
+		log.Fatal(err)
+	}
+	defer r.Release()
+	back, err := ingest.Collect(r)
+	if err != nil {
+		log.Fatal(err)
+	}
+	fmt.Println(back.Len(), back.Bx, back.Group)
+	// Output:
+	// 3 [1 2 3] [T01 T01 T02]
+}
+
+// DetectFormat looks at content, not at the name.
+func ExampleDetectFormat() {
+	fmt.Println(ingest.DetectFormat([]byte("PAR1...")))
+	fmt.Println(ingest.DetectFormat([]byte(" Format                 IAGA-2002                                    |\n")))
+	fmt.Println(ingest.DetectFormat([]byte("time,bx,by,bz\n")))
+	// Output:
+	// parquet
+	// iaga2002
+	// csv
+}

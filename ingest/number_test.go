@@ -52,4 +52,3 @@ func TestParseNumberAgainstStrconv(t *testing.T) {
 		}
 	}
 }
-
