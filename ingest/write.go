@@ -125,17 +125,32 @@ func writeIPC(w io.Writer, r Reader, file bool) error {
 	return wr.Close()
 }
 
+// parquetGroupRows is the target number of rows per Parquet row group.
+const parquetGroupRows = 256 * 1024
+
 func writeParquet(w io.Writer, r Reader) error {
 	props := parquet.NewWriterProperties(parquet.WithCompression(compress.Codecs.Snappy), parquet.WithDictionaryDefault(false))
 	fw, err := pqarrow.NewFileWriter(r.Schema(), w, props, pqarrow.NewArrowWriterProperties(pqarrow.WithStoreSchema()))
 	if err != nil {
 		return err
 	}
+	// Row groups of about parquetGroupRows rows: large enough to compress
+	// well, small enough that memory does not grow with the file.
+	rows := int64(0)
 	for r.Next() {
-		if err := fw.WriteBuffered(r.RecordBatch()); err != nil {
+		rec := r.RecordBatch()
+		if rows > 0 && rows+rec.NumRows() > parquetGroupRows {
+			if err := fw.NewBufferedRowGroupChecked(); err != nil {
+				fw.Close()
+				return err
+			}
+			rows = 0
+		}
+		if err := fw.WriteBuffered(rec); err != nil {
 			fw.Close()
 			return err
 		}
+		rows += rec.NumRows()
 	}
 	if err := r.Err(); err != nil {
 		fw.Close()
