@@ -67,11 +67,14 @@ func (f *fitter) summarise(c *candidate) (*summary, error) {
 		return nil, err
 	}
 	sp := c.sp
-	J, rows, cols, err := sp.fullJacobianCols(c.x)
+	// The triangular factor of the full Jacobian, assembled from the factorisation the
+	// variable projection holds (fullR; TestFullRCovariance checks it against the
+	// explicitly formed Jacobian).
+	R, nR, perm, err := sp.fullR(c.x)
 	if err != nil {
 		return nil, err
 	}
-	cov0, unres, err := covarianceCols(J, rows, cols)
+	cov0, unres, err := covarianceFromR(R, nR, perm)
 	if err != nil {
 		return nil, err
 	}
