@@ -125,7 +125,10 @@
 //
 //	C = s^2 (J^T J)^-1,  s^2 = Problem.Sigma^2, or RSS/(N - k) when Sigma is zero
 //
-// computed from the singular value decomposition of the column-scaled J (after QR), so a
+// computed from the singular value decomposition of the column-scaled J (after QR; the
+// triangular factor of J is assembled from the variable projection's own factors, the
+// background and basis blocks known in closed form and only the geometry block factored
+// anew, which gives R^T R = J^T J without forming J), so a
 // rank-deficient direction is detected and the quantities depending on it are reported
 // as not identifiable instead of with a meaningless sigma. Reported quantities (current,
 // phase, depth, offset, azimuth, dip) get their sigmas by the delta method. On the
