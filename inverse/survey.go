@@ -194,9 +194,12 @@ func (sv *survey) azimuthCandidates(a [][3]float64) []float64 {
 		out = append(out, math.Atan2(a[ip][1], -a[ip][0]))
 	}
 	amax := norm(a[ip])
+	mag := make([]float64, len(a))
 	var w, ce, cn float64
 	for i, v := range a {
-		if m := norm(v); m >= amax/2 {
+		m := norm(v)
+		mag[i] = m
+		if m >= amax/2 {
 			w += m
 			ce += m * sv.pts[i][0]
 			cn += m * sv.pts[i][1]
@@ -204,8 +207,8 @@ func (sv *survey) azimuthCandidates(a [][3]float64) []float64 {
 	}
 	ce, cn = ce/w, cn/w
 	var see, sen, snn float64
-	for i, v := range a {
-		if m := norm(v); m >= amax/2 {
+	for i, m := range mag {
+		if m >= amax/2 {
 			de, dn := sv.pts[i][0]-ce, sv.pts[i][1]-cn
 			see += m * de * de
 			sen += m * de * dn
@@ -255,15 +258,17 @@ func (sv *survey) seedFor(a [][3]float64, az float64) seed {
 	nh := [3]float64{math.Cos(az), -math.Sin(az), 0} // horizontal, across the line
 	ip, bp := 0, 0.0
 	for i, v := range a {
-		if c := math.Abs(dot(v, nh)); c > bp {
+		if c := math.Abs(v[0]*nh[0] + v[1]*nh[1] + v[2]*nh[2]); c > bp {
 			ip, bp = i, c
 		}
 	}
 	p := sv.pts[ip]
+	pn := p[0]*nh[0] + p[1]*nh[1] + p[2]*nh[2]
 	hw := [2]float64{math.Inf(1), math.Inf(1)}
 	for i, v := range a {
-		if math.Abs(dot(v, nh)) <= bp/2 {
-			d := dot(sub(sv.pts[i], p), nh)
+		if math.Abs(v[0]*nh[0]+v[1]*nh[1]+v[2]*nh[2]) <= bp/2 {
+			r := sv.pts[i]
+			d := r[0]*nh[0] + r[1]*nh[1] + r[2]*nh[2] - pn
 			side := 0
 			if d < 0 {
 				side, d = 1, -d
