@@ -238,11 +238,20 @@ func (f *fitter) bestOf(starts []start, quick bool) (*candidate, error) {
 	}
 	var rs []ranked
 	var firstErr error
+	// The starts are screened one after another with one set of work buffers (handed on
+	// from start to start); the few that are polished evaluate again with their own.
+	var prev *separable
+	var r []float64
 	for _, st := range starts {
 		sp := newSeparable(f.sv.pts, f.sv.y, f.sv.nrhs, f.set.Background, f.sv.centroid, st.lines, st.dips)
-		lmp, x0 := sp.problem()
-		project(x0, lmp.lower, lmp.upper)
-		r := make([]float64, lmp.m)
+		if prev != nil {
+			sp.a, sp.qty, sp.coef, sp.tau, sp.bbar = prev.a, prev.qty, prev.coef, prev.tau, prev.bbar
+			prev.a, prev.qty, prev.coef, prev.tau, prev.bbar, prev.ok = nil, nil, nil, nil, nil, false
+		}
+		prev = sp
+		x0, lo, hi := sp.pack()
+		project(x0, lo, hi)
+		r = grow(r, sp.residLen())
 		if err := sp.resid(x0, r); err != nil {
 			if firstErr == nil {
 				firstErr = err
