@@ -307,6 +307,8 @@ func convertible(dt arrow.DataType, c int) bool {
 		return c == cTime
 	case arrow.NULL:
 		return c != cTime
+	case arrow.DICTIONARY, arrow.BOOL:
+		return c == cGroup
 	}
 	return false
 }

@@ -177,9 +177,20 @@ func TestIAGAErrors(t *testing.T) {
 			wantErr(t, err, tc.want)
 		})
 	}
-	// XYZ: east = Y, north = X, up = -Z.
-	p := writeFile(t, "hfn.min", head+cols+row)
+	// 99999.00 (missing) and 88888.00 (not recorded) read as NaN, not as
+	// errors (IAGA-2002 format description, INTERMAGNET technical manual).
+	gap := strings.Replace(strings.Replace(row, "17500.00", "99999.00", 1), "49200.00", "88888.00", 1)
+	p := writeFile(t, "hfn.min", head+cols+gap)
 	s, err := ReadSamples(p)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !math.IsNaN(s.By[0]) || !math.IsNaN(s.F[0]) || s.Bx[0] != -450 || s.Meta["missing_rows"] != "1" {
+		t.Errorf("missing markers: by %v f %v bx %v meta %v", s.By[0], s.F[0], s.Bx[0], s.Meta)
+	}
+	// XYZ: east = Y, north = X, up = -Z.
+	p = writeFile(t, "hfn.min", head+cols+row)
+	s, err = ReadSamples(p)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -268,3 +268,47 @@ func TestDetectFormatIgnoresName(t *testing.T) {
 		}
 	}
 }
+
+// TestArrowDictionaryGroup: data servers often write text ids
+// dictionary-encoded.
+func TestArrowDictionaryGroup(t *testing.T) {
+	mem := checked(t)
+	dt := &arrow.DictionaryType{IndexType: arrow.PrimitiveTypes.Int32, ValueType: arrow.BinaryTypes.String}
+	sc := arrow.NewSchema([]arrow.Field{
+		{Name: "time", Type: arrow.PrimitiveTypes.Float64},
+		{Name: "bx", Type: arrow.PrimitiveTypes.Float64},
+		{Name: "by", Type: arrow.PrimitiveTypes.Float64},
+		{Name: "bz", Type: arrow.PrimitiveTypes.Float64},
+		{Name: "sensor", Type: dt},
+	}, nil)
+	b := array.NewRecordBuilder(memory.DefaultAllocator, sc)
+	defer b.Release()
+	for i := 0; i < 4; i++ {
+		b.Field(i).(*array.Float64Builder).AppendValues([]float64{0, 1, 2}, nil)
+	}
+	db := b.Field(4).(*array.BinaryDictionaryBuilder)
+	for _, s := range []string{"HF-1", "HF-2", "HF-1"} {
+		if err := db.AppendString(s); err != nil {
+			t.Fatal(err)
+		}
+	}
+	rec := b.NewRecordBatch()
+	defer rec.Release()
+	p := filepath.Join(t.TempDir(), "dict.arrows")
+	if err := WriteFileAtomic(p, func(w io.Writer) error {
+		sw := ipc.NewWriter(w, ipc.WithSchema(sc))
+		if err := sw.Write(rec); err != nil {
+			return err
+		}
+		return sw.Close()
+	}); err != nil {
+		t.Fatal(err)
+	}
+	s, err := ReadSamples(p, WithAllocator(mem))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if strings.Join(s.Group, ",") != "HF-1,HF-2,HF-1" {
+		t.Errorf("group %q", s.Group)
+	}
+}
