@@ -24,8 +24,10 @@ const (
 // "format", "source_of_data", "station_name", "iaga_code",
 // "geodetic_latitude", "geodetic_longitude", "elevation", "reported",
 // "sensor_orientation", "digital_sampling", "data_interval_type",
-// "data_type", plus "decbas" from a "# DECBAS" comment and "elements", the
-// element set of the data columns as read ("HDZF").
+// "data_type", plus "decbas" from a "# DECBAS" comment, "elements", the
+// element set of the data columns as read ("HDZF"), and the short keys
+// "station" (the IAGA code), "latitude" and "longitude" (degrees, as in
+// the header: longitudes may run 0 to 360).
 type iagaReader struct {
 	name     string
 	closer   io.Closer
@@ -106,6 +108,12 @@ func newIAGAReader(name string, rd io.Reader, cfg *config) (*iagaReader, error) 
 	}
 	if len(columns) < 7 {
 		return nil, lineErr(name, r.line, "", strings.Join(columns, " "), "IAGA-2002 column line needs DATE TIME DOY and four elements, found %d names", len(columns))
+	}
+	// Short keys as well, for callers that want the essentials.
+	for short, long := range map[string]string{"station": "iaga_code", "latitude": "geodetic_latitude", "longitude": "geodetic_longitude"} {
+		if v, ok := meta[MetaPrefix+long]; ok {
+			meta[MetaPrefix+short] = v
+		}
 	}
 	code := meta[MetaPrefix+"iaga_code"]
 	var el [4]string

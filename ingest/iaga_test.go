@@ -84,7 +84,7 @@ func TestIAGAConversions(t *testing.T) {
 			t.Errorf("HDZ row 0: ENU %v, want %v", got, want)
 		}
 	}
-	if s.Meta["decbas"] != "5527" || s.Meta["geodetic_latitude"] != "40.137" {
+	if s.Meta["decbas"] != "5527" || s.Meta["geodetic_latitude"] != "40.137" || s.Meta["station"] != "BOU" || s.Meta["longitude"] != "254.764" {
 		t.Errorf("header fields: %v", s.Meta)
 	}
 	// First row of BOU20200101vsec.sec: H 20826.85, E -86.75, Z 46874.62.
