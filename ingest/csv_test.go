@@ -3,6 +3,7 @@ package ingest
 import (
 	"fmt"
 	"math"
+	"path/filepath"
 	"strings"
 	"testing"
 )
@@ -283,6 +284,23 @@ func TestCSVGeodetic(t *testing.T) {
 	}
 	if math.Abs(mx) > 1e-6 || math.Abs(my) > 1e-6 {
 		t.Errorf("mean origin: mean position (%g, %g), want (0, 0)", mx, my)
+	}
+	// The origin travels with the converted log.
+	r, err := Open(p)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer r.Release()
+	q := filepath.Join(t.TempDir(), "gps.arrow")
+	if err := WriteReader(q, r); err != nil {
+		t.Fatal(err)
+	}
+	s, err = ReadSamples(q)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if s.Origin == nil || *s.Origin != (Geodetic{40.137, -105.236, 1682}) || math.Abs(s.Y[1]-111.066633) > 1e-5 {
+		t.Errorf("after conversion: origin %v, y %v", s.Origin, s.Y)
 	}
 }
 
