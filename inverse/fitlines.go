@@ -6,6 +6,7 @@ import (
 	"math"
 	"sort"
 	"strings"
+	"sync"
 )
 
 // polishKeep is the multi-start budget: the starts are ranked by the projected sum of
@@ -57,7 +58,8 @@ func FitLines(p *Problem, set *Settings) (*Result, error) {
 	if sv.single && s.Background == BackgroundGradient {
 		return nil, errors.New("inverse: a background gradient cannot be resolved from a single traverse; use BackgroundUniform")
 	}
-	f := &fitter{sv: sv, set: &s, prob: p}
+	f := &fitter{sv: sv, set: &s, prob: p, lmWork: lmWorkPool.Get().(*[]float64)}
+	defer lmWorkPool.Put(f.lmWork)
 	if s.Count > 0 {
 		var prev *candidate
 		var err error
@@ -117,8 +119,12 @@ type fitter struct {
 	starts    int
 	floor     float64 // noiseFloor, once computed
 	floorDone bool
-	rough     bool // an intermediate fit that only seeds the next: one start, few iterations
+	rough     bool       // an intermediate fit that only seeds the next: one start, few iterations
+	lmWork    *[]float64 // the LM engine's workspace, shared by the fits (one runs at a time)
 }
+
+// lmWorkPool recycles the LM engine's workspaces between calls of FitLines.
+var lmWorkPool = sync.Pool{New: func() any { return new([]float64) }}
 
 func (f *fitter) holds() (holdAz, holdDip bool, az, dip float64) {
 	sv, s := f.sv, f.set
@@ -244,6 +250,7 @@ func (f *fitter) bestOf(starts []start, quick bool) (*candidate, error) {
 	var r []float64
 	for _, st := range starts {
 		sp := newSeparable(f.sv.pts, f.sv.y, f.sv.nrhs, f.set.Background, f.sv.centroid, st.lines, st.dips)
+		sp.lmWork = f.lmWork
 		if prev != nil {
 			sp.a, sp.qty, sp.coef, sp.tau, sp.bbar = prev.a, prev.qty, prev.coef, prev.tau, prev.bbar
 			prev.a, prev.qty, prev.coef, prev.tau, prev.bbar, prev.ok = nil, nil, nil, nil, nil, false

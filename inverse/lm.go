@@ -19,6 +19,8 @@ type lmProblem struct {
 	// jacCols, when set, is used instead of jac: it writes the Jacobian column-major
 	// (column k is jc[k*m:(k+1)*m]). lmResult.j is then nil.
 	jacCols func(x, r, jc []float64) error
+	// work, when not nil, is a workspace reused from call to call (grown as needed).
+	work *[]float64
 	// lower and upper bound x elementwise when non-nil (use +-Inf for free components).
 	lower, upper []float64
 }
@@ -98,7 +100,20 @@ func levmar(p *lmProblem, x0 []float64, set lmSettings) (*lmResult, error) {
 	if p.jacCols == nil {
 		J = mat.NewDense(m, n, nil)
 	}
-	jc := make([]float64, m*n) // the Jacobian, column-major
+	// One allocation (or the caller's workspace) for the Jacobian and every work vector
+	// of the iterations; each is written before it is read.
+	need := m*n + 7*n + 2*m + m*(n+1) + (n + 1) + 3*n*n
+	var buf []float64
+	if p.work != nil && cap(*p.work) >= need {
+		buf = (*p.work)[:need]
+	} else {
+		buf = make([]float64, need)
+		if p.work != nil {
+			*p.work = buf
+		}
+	}
+	take := func(k int) []float64 { s := buf[:k:k]; buf = buf[k:]; return s }
+	jc := take(m * n) // the Jacobian, column-major
 	evalJac := func() error {
 		if p.jacCols != nil {
 			return p.jacCols(x, r, jc)
@@ -114,9 +129,6 @@ func levmar(p *lmProblem, x0 []float64, set lmSettings) (*lmResult, error) {
 		}
 		return nil
 	}
-	// One allocation for every work vector of the iterations.
-	buf := make([]float64, 7*n+2*m+m*(n+1)+(n+1)+3*n*n)
-	take := func(k int) []float64 { s := buf[:k:k]; buf = buf[k:]; return s }
 	diag, xt, step, cn2, grad := take(n), take(n), take(n), take(n), take(n)
 	qtrBuf, betaBuf := take(n), take(n)
 	rt, jp := take(m), take(m)
@@ -348,7 +360,8 @@ func levmar(p *lmProblem, x0 []float64, set lmSettings) (*lmResult, error) {
 		}
 	}
 done:
-	if !jacFresh {
+	if !jacFresh && p.jacCols == nil {
+		// lmResult.j is the Jacobian at the solution (not returned with jacCols).
 		if err := evalJac(); err != nil {
 			return nil, err
 		}

@@ -73,7 +73,8 @@ type separable struct {
 	bn2               [3]float64   // squared norms of the weighted uniform background columns
 	bbar              [][3]float64 // per column of a: its projection coefficients on them
 	dblk, full        []float64
-	at                []float64 // x of the cached state
+	lmWork            *[]float64 // the LM engine's workspace (shared within a fit), or nil
+	at                []float64  // x of the cached state
 	ok                bool
 }
 
@@ -647,7 +648,7 @@ func (sp *separable) jacCols(x, _ []float64, jc []float64) error {
 // problem wraps the separable model for the LM engine.
 func (sp *separable) problem() (*lmProblem, []float64) {
 	x, lo, hi := sp.pack()
-	return &lmProblem{m: sp.residLen(), n: len(x), resid: sp.resid, jac: sp.jac, jacCols: sp.jacCols, lower: lo, upper: hi}, x
+	return &lmProblem{m: sp.residLen(), n: len(x), resid: sp.resid, jac: sp.jac, jacCols: sp.jacCols, lower: lo, upper: hi, work: sp.lmWork}, x
 }
 
 // fullJacobian returns the weighted Jacobian of the full model with respect to all
