@@ -711,22 +711,32 @@ func (sp *separable) fullResiduals(x []float64) ([]float64, error) {
 	if err := sp.evaluate(x); err != nil {
 		return nil, err
 	}
-	m, q, nr := sp.m, sp.q, sp.nrhs
+	m, q, g, nr := sp.m, sp.q, sp.g, sp.nrhs
 	w := sp.w
 	sp.w = nil
-	sp.full = grow(sp.full, m*q)
-	phi := sp.full // column-major
-	err := sp.fillPhi(phi, 1, m, nil)
+	sp.full = grow(sp.full, m*max(g, 1))
+	phi := sp.full // column-major, in the layout of sp.a (uniform background implicit)
+	err := sp.fillPhi(phi, 1, m, sp.pos)
 	sp.w = w
 	if err != nil {
 		return nil, err
 	}
 	res := append([]float64(nil), sp.y...)
 	for k := range nr {
-		for j := range q {
-			c := sp.coef[j*nr+k]
-			for row, v := range phi[j*m : (j+1)*m] {
-				res[row*nr+k] -= v * c
+		for c := range q {
+			p := sp.pos[c]
+			if p < 0 {
+				continue
+			}
+			cc := sp.coef[c*nr+k]
+			for row, v := range phi[p*m : (p+1)*m] {
+				res[row*nr+k] -= v * cc
+			}
+		}
+		if sp.uniform() {
+			bc := sp.bgCol()
+			for row := range m {
+				res[row*nr+k] -= sp.coef[(bc+row%3)*nr+k]
 			}
 		}
 	}
