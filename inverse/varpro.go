@@ -47,9 +47,10 @@ func (g *lineGeom) nfree() int {
 // separable is the variable-projection form of a K-line fit: for fixed geometry the
 // strengths (currents, background) are the linear least-squares solution, and only the
 // geometry is iterated (Golub & Pereyra 1973). The residual handed to the LM engine is
-// Q2^T y, the component of the (weighted) data orthogonal to the basis, expressed in the
-// Householder basis of its complement; the Jacobian is Kaufman's (BIT 15:49-57, 1975)
-// -Q2^T (dPhi/dtheta) c, which gives the exact gradient of ||P_perp y||^2.
+// Q2^T P_B y, the component of the (weighted) data orthogonal to the basis, expressed in
+// the Householder basis of its complement (P_B removes the uniform background, see
+// evaluate); the Jacobian is Kaufman's (BIT 15:49-57, 1975) -Q2^T P_B (dPhi/dtheta) c,
+// which gives the exact gradient of ||P_perp y||^2.
 type separable struct {
 	pts  [][3]float64
 	m    int       // rows per right-hand side, 3 per point
@@ -72,9 +73,9 @@ type separable struct {
 	g                 int          // columns of a
 	bn2               [3]float64   // squared norms of the weighted uniform background columns
 	bbar              [][3]float64 // per column of a: its projection coefficients on them
-	dblk, full        []float64
-	lmWork            *[]float64 // the LM engine's workspace (shared within a fit), or nil
-	at                []float64  // x of the cached state
+	dblk, full        []float64    // derivative columns; unweighted basis for residuals
+	lmWork            *[]float64   // the LM engine's workspace (shared within a fit), or nil
+	at                []float64    // x of the cached state
 	ok                bool
 }
 
