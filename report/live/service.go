@@ -231,12 +231,19 @@ func (s *Service) leaseRound(ctx context.Context, order []string) {
 			if err != nil {
 				s.log.Error("asset processing stopped", "asset", name, "err", err)
 			}
-			st.Lease.Delete(rctx, name, jetstream.LastRevision(h.rev))
+			s.releaseLease(rctx, name)
 			delete(s.held, name)
 			continue
 		default:
 		}
 		rev, err := st.Lease.Update(rctx, name, []byte(s.id), h.rev)
+		if err != nil {
+			// A renewal that timed out may still have been applied: the
+			// lease is ours as long as the key names this worker.
+			if e, gerr := st.Lease.Get(rctx, name); gerr == nil && string(e.Value()) == s.id {
+				rev, err = st.Lease.Update(rctx, name, []byte(s.id), e.Revision())
+			}
+		}
 		if err != nil {
 			s.log.Warn("lease lost", "asset", name, "err", err)
 			h.cancel()
@@ -290,13 +297,24 @@ func (s *Service) releaseAll() error {
 		if err := <-h.done; err != nil {
 			errs = append(errs, err)
 		}
-		s.stores.Lease.Delete(ctx, name, jetstream.LastRevision(h.rev))
+		s.releaseLease(ctx, name)
 		delete(s.held, name)
 	}
 	s.stores.Workers.Delete(ctx, s.id)
 	s.met.leases.Set(0)
 	s.log.Info("drained")
 	return errors.Join(errs...)
+}
+
+// releaseLease hands the lease on name back if this worker still holds it.
+func (s *Service) releaseLease(ctx context.Context, name string) {
+	e, err := s.stores.Lease.Get(ctx, name)
+	if err != nil || string(e.Value()) != s.id {
+		return
+	}
+	if err := s.stores.Lease.Delete(ctx, name, jetstream.LastRevision(e.Revision())); err != nil {
+		s.log.Warn("lease not handed back; it expires after the lease TTL", "asset", name, "err", err)
+	}
 }
 
 // publish stores msg through JetStream with a message id, retrying while

@@ -31,7 +31,7 @@ type Site struct {
 
 // ServiceConfig is the [service] table.
 type ServiceConfig struct {
-	// HTTP is the API listen address; "" means 127.0.0.1:8470.
+	// HTTP is the API listen address; "" means 127.0.0.1:8470, "-" none.
 	HTTP string `toml:"http"`
 	// Token guards the state-changing endpoints (and every endpoint when
 	// HTTP is not loopback); TokenEnv names an environment variable holding
@@ -212,7 +212,7 @@ func (s *Site) validate() error {
 	if s.Service.LeaseTTL.Duration < 500*time.Millisecond {
 		return fmt.Errorf("service.lease_ttl %v: want at least 500ms", s.Service.LeaseTTL.Duration)
 	}
-	if _, _, err := net.SplitHostPort(s.Service.HTTP); err != nil {
+	if _, _, err := net.SplitHostPort(s.Service.HTTP); err != nil && s.Service.HTTP != "-" {
 		return fmt.Errorf("service.http %q: want host:port", s.Service.HTTP)
 	}
 	if s.Broker.Listen == "" {

@@ -1,0 +1,154 @@
+package main
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"io"
+	"time"
+
+	"github.com/nats-io/nats.go/jetstream"
+	"github.com/spf13/pflag"
+
+	"undercurrent/ingest"
+	"undercurrent/ingest/broker"
+)
+
+type replayOptions struct {
+	asset    string
+	sensor   string
+	speed    float64
+	broker   string
+	batch    time.Duration
+	format   string
+	now      bool
+	shift    float64
+	user     string
+	password string
+	token    string
+	wait     time.Duration
+	read     readFlags
+}
+
+func init() {
+	var o replayOptions
+	register(&command{
+		name:    "replay",
+		usage:   "LOG --asset ASSET [flags]",
+		summary: "publish a recorded log as live sensor messages (tests, demos, re-processing)",
+		long: `Replay reads a log (any format undercurrent reads) and publishes it to the
+broker as live sensor batches on uc.data.ASSET.SENSOR, paced by --speed.
+The log's group column names the sensor of each row (or give --sensor for a
+log of one sensor); fields are the sensor's own readings, and positions
+come from the site file, not the log. Each batch is stored once even if the
+replay is repeated (message ids), so an interrupted replay can be run again.
+
+Examples:
+  undercurrent replay fenwick-2025-11-30.arrows --asset fenwick-lane --speed 1
+  undercurrent replay km-a.csv --asset kestrel-moor --sensor km-a --speed 0 --format arrow
+  undercurrent replay fenwick.csv --asset fenwick-lane --now --broker nats://127.0.0.1:4222`,
+		setFlags: func(fs *pflag.FlagSet) {
+			fs.StringVar(&o.asset, "asset", "", "asset `NAME` in the site file (required)")
+			fs.StringVar(&o.sensor, "sensor", "", "sensor `NAME` for a log without a group column, or to send one group only")
+			fs.Float64Var(&o.speed, "speed", 1, "replay rate relative to real time, `X` (0: as fast as the broker acknowledges)")
+			fs.StringVar(&o.broker, "broker", "nats://127.0.0.1:4222", "NATS `URL` of the broker")
+			fs.DurationVar(&o.batch, "batch", 100*time.Millisecond, "batch `DURATION` per message")
+			fs.StringVar(&o.format, "format", "json", "payload encoding: json or arrow")
+			fs.BoolVar(&o.now, "now", false, "shift times so the log starts now (makes an old log look live)")
+			fs.Float64Var(&o.shift, "shift", 0, "add `S` seconds to every time")
+			fs.StringVar(&o.user, "user", "", "broker user")
+			fs.StringVar(&o.password, "password", "", "broker password")
+			fs.StringVar(&o.token, "token", "", "broker token")
+			fs.DurationVar(&o.wait, "wait", 10*time.Second, "wait up to `DURATION` for the broker's data stream (created by serve)")
+			o.read.add(fs)
+		},
+		run: func(ctx context.Context, fs *pflag.FlagSet, args []string, stdout, stderr io.Writer) error {
+			return runReplay(ctx, &o, fs, args, stdout)
+		},
+	})
+}
+
+func runReplay(ctx context.Context, o *replayOptions, fs *pflag.FlagSet, args []string, stdout io.Writer) error {
+	if len(args) != 1 {
+		return usageErrorf("replay takes one LOG (got %d arguments)", len(args))
+	}
+	if o.asset == "" {
+		return usageErrorf("--asset is required")
+	}
+	if err := broker.ValidToken(o.asset); err != nil {
+		return usageErrorf("--asset: %v", err)
+	}
+	if o.speed < 0 {
+		return usageErrorf("--speed %v: want 0 or more", o.speed)
+	}
+	if o.batch <= 0 {
+		return usageErrorf("--batch %v: want a positive duration", o.batch)
+	}
+	enc := map[string]string{"json": broker.ContentJSON, "arrow": broker.ContentArrow}[o.format]
+	if enc == "" {
+		return usageErrorf("--format %q: want json or arrow", o.format)
+	}
+	if o.now && o.shift != 0 {
+		return usageErrorf("give --now or --shift, not both")
+	}
+	opts, err := o.read.options(fs)
+	if err != nil {
+		return err
+	}
+	opts = append(opts, ingest.WithAllowBackwards(true)) // rows of several sensors interleave
+	s, err := ingest.ReadSamples(args[0], opts...)
+	if err != nil {
+		return err
+	}
+	batches, err := broker.SplitSamples(s, o.asset, o.sensor, o.batch.Seconds())
+	if err != nil {
+		return err
+	}
+	nc, err := broker.Connect(o.broker, "undercurrent replay", broker.Auth{User: o.user, Password: o.password, Token: o.token})
+	if err != nil {
+		return err
+	}
+	defer nc.Close()
+	js, err := jetstream.New(nc)
+	if err != nil {
+		return err
+	}
+	if err := waitForStream(ctx, js, o.wait); err != nil {
+		return err
+	}
+	set := &broker.ReplaySettings{Speed: o.speed, Encoding: enc, Shift: o.shift}
+	if o.now {
+		set.Shift = float64(time.Now().UnixNano())/1e9 - batches[0].Time[0]
+	}
+	st, err := broker.Replay(ctx, js, batches, set)
+	if err != nil {
+		return err
+	}
+	fmt.Fprintf(stdout, "replayed %d samples in %d batches for asset %s, sensors %v, times %.3f to %.3f (%d already stored)\n",
+		st.Samples, st.Batches, o.asset, st.Sensors, st.From, st.To, st.Duplicates)
+	return nil
+}
+
+// waitForStream waits until the data stream exists (serve creates it).
+func waitForStream(ctx context.Context, js jetstream.JetStream, d time.Duration) error {
+	deadline := time.Now().Add(d)
+	for {
+		c, cancel := context.WithTimeout(ctx, 2*time.Second)
+		_, err := js.Stream(c, broker.StreamData)
+		cancel()
+		if err == nil {
+			return nil
+		}
+		if !errors.Is(err, jetstream.ErrStreamNotFound) && time.Now().After(deadline) {
+			return fmt.Errorf("broker: %w", err)
+		}
+		if time.Now().After(deadline) {
+			return fmt.Errorf("no %s stream on the broker after %v: is undercurrent serve running?", broker.StreamData, d)
+		}
+		select {
+		case <-ctx.Done():
+			return ctx.Err()
+		case <-time.After(100 * time.Millisecond):
+		}
+	}
+}

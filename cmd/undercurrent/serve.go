@@ -1,0 +1,170 @@
+package main
+
+import (
+	"context"
+	"fmt"
+	"io"
+	"log/slog"
+	"net"
+	"os"
+	"strconv"
+
+	"github.com/spf13/pflag"
+
+	"undercurrent/ingest/broker"
+	"undercurrent/report/live"
+)
+
+type serveOptions struct {
+	config   string
+	broker   string
+	data     string
+	http     string
+	worker   string
+	user     string
+	password string
+	token    string
+	logLevel string
+}
+
+func init() {
+	var o serveOptions
+	register(&command{
+		name:    "serve",
+		usage:   "--config SITE [flags]",
+		summary: "run the continuous pipeline: live sensor data in, currents and alarms out",
+		long: `Serve reads the site file (assets, sensors, conductors, windows, alarm
+thresholds; see testdata/site/harrow-fen.toml) and runs the live pipeline:
+sensor batches arriving on uc.data.<asset>.<sensor> (NATS, or MQTT topic
+uc/data/<asset>/<sensor>) are windowed per asset, calibrated, demodulated
+for AC and solved with the conductor geometry held; estimates go to
+uc.est.<asset> and alarms to uc.alarm.<asset>.<kind>, both kept in the
+broker, and refused messages to uc.dlq.<reason>.
+
+By default serve starts an embedded NATS server with JetStream (file store
+in --data) and its MQTT listener, at the addresses in the site file's
+[broker] table. With --broker it joins an existing NATS server or cluster
+instead. Several serve processes against one broker share the assets: each
+asset is handled by one worker at a time, in order, and another takes over
+within the lease time when a worker dies. SIGTERM or Ctrl-C drains: complete
+windows are published and leases handed back before exit.
+
+HTTP API (loopback by default): /healthz, /readyz, /metrics,
+/api/v1/assets, /api/v1/assets/ASSET/latest,
+/api/v1/assets/ASSET/history?from=&to=&format=csv, /api/v1/alarms.
+POST /api/v1/assets/ASSET/recommission needs the service token.
+
+Examples:
+  undercurrent serve --config testdata/site/harrow-fen.toml --data /var/lib/undercurrent
+  undercurrent serve --config site.toml --broker nats://10.0.0.1:4222,nats://10.0.0.2:4222,nats://10.0.0.3:4222
+  undercurrent serve --config site.toml --http 127.0.0.1:9000 --worker edge-2`,
+		setFlags: func(fs *pflag.FlagSet) {
+			fs.StringVar(&o.config, "config", "", "site file `SITE` (TOML)")
+			fs.StringVar(&o.broker, "broker", "", "join the NATS server or cluster at `URL` (comma-separated) instead of starting one")
+			fs.StringVar(&o.data, "data", "undercurrent-data", "JetStream store `DIR` of the embedded broker")
+			fs.StringVar(&o.http, "http", "", "HTTP API listen `ADDR` (default from the site file; \"-\" for none)")
+			fs.StringVar(&o.worker, "worker", "", "worker `ID` used in leases and estimates (default host-pid-random)")
+			fs.StringVar(&o.user, "user", "", "broker user (default from the site file)")
+			fs.StringVar(&o.password, "password", "", "broker password (default from the site file, or $UNDERCURRENT_BROKER_PASSWORD)")
+			fs.StringVar(&o.token, "token", "", "broker token (default from the site file)")
+			fs.StringVar(&o.logLevel, "log-level", "info", "log `LEVEL`: debug, info, warn or error")
+		},
+		run: func(ctx context.Context, fs *pflag.FlagSet, args []string, stdout, stderr io.Writer) error {
+			return runServe(ctx, &o, args, stderr)
+		},
+	})
+}
+
+func runServe(ctx context.Context, o *serveOptions, args []string, stderr io.Writer) error {
+	if len(args) != 0 {
+		return usageErrorf("serve takes no arguments (got %q)", args[0])
+	}
+	if o.config == "" {
+		return usageErrorf("--config SITE is required")
+	}
+	var level slog.Level
+	if err := level.UnmarshalText([]byte(o.logLevel)); err != nil {
+		return usageErrorf("--log-level %q: want debug, info, warn or error", o.logLevel)
+	}
+	log := slog.New(slog.NewTextHandler(stderr, &slog.HandlerOptions{Level: level}))
+	site, err := live.LoadSite(o.config)
+	if err != nil {
+		return err
+	}
+	auth := broker.Auth{User: site.Broker.User, Password: site.Broker.Password, Token: site.Broker.Token}
+	if o.user != "" {
+		auth.User = o.user
+	}
+	if o.password != "" {
+		auth.Password = o.password
+	} else if p := os.Getenv("UNDERCURRENT_BROKER_PASSWORD"); p != "" {
+		auth.Password = p
+	}
+	if o.token != "" {
+		auth.Token = o.token
+	}
+	url := o.broker
+	if url == "" {
+		cfg, err := embeddedConfig(site, o.data)
+		if err != nil {
+			return err
+		}
+		cfg.Logf = func(format string, a ...any) { log.Debug(fmt.Sprintf(format, a...)) }
+		srv, err := broker.StartServer(cfg)
+		if err != nil {
+			return err
+		}
+		defer srv.Shutdown()
+		url = srv.ClientURL()
+		log.Info("embedded broker started", "nats", url, "mqtt", srv.MQTTAddr(), "store", o.data)
+	}
+	nc, err := broker.Connect(url, "undercurrent serve", auth)
+	if err != nil {
+		return err
+	}
+	defer nc.Close()
+	svc, err := live.New(live.Config{Site: site, Conn: nc, Worker: o.worker, HTTP: o.http, Logger: log})
+	if err != nil {
+		return err
+	}
+	log.Info("serving", "site", site.Name, "assets", len(site.Assets))
+	return svc.Run(ctx)
+}
+
+// embeddedConfig turns the site's [broker] table into the embedded server's settings.
+func embeddedConfig(site *live.Site, dir string) (broker.ServerConfig, error) {
+	cfg := broker.ServerConfig{StoreDir: dir, Name: "undercurrent", Token: site.Broker.Token}
+	host, port, err := splitAddr(site.Broker.Listen, "broker.listen")
+	if err != nil {
+		return cfg, err
+	}
+	cfg.Host, cfg.Port = host, port
+	if site.Broker.MQTT == "off" {
+		cfg.MQTTPort = -1
+	} else {
+		mh, mp, err := splitAddr(site.Broker.MQTT, "broker.mqtt")
+		if err != nil {
+			return cfg, err
+		}
+		if mh != host {
+			return cfg, fmt.Errorf("%s: broker.mqtt host %q differs from broker.listen host %q", site.Path, mh, host)
+		}
+		cfg.MQTTPort = mp
+	}
+	for _, u := range site.Broker.Users {
+		cfg.Users = append(cfg.Users, broker.User{Name: u.Name, Password: u.Password, Publish: u.Publish, Subscribe: u.Subscribe})
+	}
+	return cfg, nil
+}
+
+func splitAddr(addr, key string) (string, int, error) {
+	h, p, err := net.SplitHostPort(addr)
+	if err != nil {
+		return "", 0, fmt.Errorf("%s %q: want host:port", key, addr)
+	}
+	n, err := strconv.Atoi(p)
+	if err != nil || n < 0 || n > 65535 {
+		return "", 0, fmt.Errorf("%s %q: port %q is not a number from 0 to 65535", key, addr, p)
+	}
+	return h, n, nil
+}
