@@ -250,11 +250,19 @@ func TestAuthentication(t *testing.T) {
 		t.Fatal("gateway subscription to estimates was not refused")
 	}
 	// The pipeline user has full access.
-	nc, js := connectJS(t, s.ClientURL(), Auth{User: "pipeline", Password: "harrow-fen-service"})
+	_, js := connectJS(t, s.ClientURL(), Auth{User: "pipeline", Password: "harrow-fen-service"})
 	ctx, cancel := context.WithTimeout(context.Background(), 20*time.Second)
 	defer cancel()
 	if _, err := Setup(ctx, js, StreamSettings{Memory: true}); err != nil {
 		t.Fatal(err)
 	}
-	_ = nc
+	// The gateway, allowed only to publish data, can do so over MQTT.
+	payload, _ := EncodeJSON(testBatch(3))
+	if err := mqttPublish(s.MQTTAddr(), "gateway", "fenwick-gw", "uc/data/fenwick-lane/s1", payload); err != nil {
+		t.Fatalf("gateway MQTT publish: %v", err)
+	}
+	st, _ := js.Stream(ctx, StreamData)
+	if _, err := st.GetLastMsgForSubject(ctx, "uc.data.fenwick-lane.s1"); err != nil {
+		t.Fatalf("gateway's MQTT message not stored: %v", err)
+	}
 }
