@@ -295,6 +295,6 @@ func (s *Service) recommission(w http.ResponseWriter, r *http.Request) {
 		httpError(w, http.StatusBadGateway, err.Error())
 		return
 	}
-	s.log.Info("geometry forgotten; the asset is commissioned again when next acquired", "asset", a.Name)
-	writeJSON(w, map[string]string{"asset": a.Name, "status": "geometry forgotten; commissioned again from new data when the asset is next acquired"})
+	s.log.Info("geometry forgotten; the asset is commissioned again from new data", "asset", a.Name)
+	writeJSON(w, map[string]string{"asset": a.Name, "status": "geometry forgotten; the asset is commissioned again from the next windows"})
 }

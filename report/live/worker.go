@@ -216,6 +216,16 @@ func (w *assetWorker) closeReady(now time.Time, idle time.Duration) error {
 
 // window processes one closed window: commissioning or solve, publish.
 func (w *assetWorker) window(win *Window) error {
+	if w.asset.Model == "commission" && w.proc.est != nil {
+		// A recommission request deletes the stored geometry: start again.
+		ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
+		_, err := w.svc.stores.State.Get(ctx, geometryKey(w.asset.Name))
+		cancel()
+		if errors.Is(err, jetstream.ErrKeyNotFound) {
+			w.log.Info("geometry forgotten; commissioning again", "from", win.Start)
+			w.proc.est, w.proc.names = nil, nil
+		}
+	}
 	if w.proc.est == nil {
 		return w.commission(win)
 	}
