@@ -265,7 +265,15 @@ func (s *Service) leaseRound(ctx context.Context, order []string) {
 		}
 		rev, err := st.Lease.Create(rctx, name, []byte(s.id))
 		if err != nil {
-			continue // held by another worker (or the broker is away)
+			// Held by another worker, or by this one from before a
+			// broker restart or a lost renewal: adopt our own.
+			e, gerr := st.Lease.Get(rctx, name)
+			if gerr != nil || string(e.Value()) != s.id {
+				continue
+			}
+			if rev, err = st.Lease.Update(rctx, name, []byte(s.id), e.Revision()); err != nil {
+				continue
+			}
 		}
 		a := s.site.Asset(name)
 		aw, err := s.newAssetWorker(a)

@@ -7,6 +7,8 @@ import (
 	"io"
 	"math"
 	"net/http"
+	"net/url"
+	"strconv"
 	"strings"
 	"sync"
 	"testing"
@@ -449,4 +451,47 @@ func TestDrainHandsOver(t *testing.T) {
 	waitFor(t, 20*time.Second, "8 estimates", func() bool { return len(h.estimates()) >= 8 })
 	checkExactlyOnce(t, h.estimates(), 8)
 	b.stop(t)
+}
+
+// Reliability (issue 6): stop and restart the broker under a running
+// service; nothing acknowledged is lost and every window still has
+// exactly one estimate.
+func TestBrokerRestartUnderService(t *testing.T) {
+	if testing.Short() {
+		t.Skip("restarts a broker under the service")
+	}
+	dir := t.TempDir()
+	srv, err := broker.StartServer(broker.ServerConfig{StoreDir: dir, MQTTPort: -1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	u, _ := url.Parse(srv.ClientURL())
+	port, _ := strconv.Atoi(u.Port())
+	h := &harness{t: t, srv: srv}
+	connect := func() {
+		nc, err := broker.Connect(srv.ClientURL(), "test-publisher", broker.Auth{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		t.Cleanup(nc.Close)
+		h.nc = nc
+		h.js, _ = jetstream.New(nc)
+	}
+	connect()
+	r := h.start(testSite(t, testSiteText), "w1")
+	h.publish(0, 2)
+	waitFor(t, 30*time.Second, "4 estimates", func() bool { return len(h.estimates()) >= 4 })
+	srv.Shutdown()
+	srv, err = broker.StartServer(broker.ServerConfig{StoreDir: dir, Port: port, MQTTPort: -1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer srv.Shutdown()
+	h.srv = srv
+	connect()
+	h.publish(2, 2)
+	waitFor(t, 60*time.Second, "8 estimates", func() bool { return len(h.estimates()) >= 8 })
+	time.Sleep(200 * time.Millisecond)
+	checkExactlyOnce(t, h.estimates(), 8)
+	r.stop(t)
 }
