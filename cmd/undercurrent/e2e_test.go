@@ -344,13 +344,14 @@ func TestE2ECurrentStep(t *testing.T) {
 				size, sigma = v.Value, v.Sigma
 			}
 		}
-		// The true change between the currents under T13 and T14
-		// (1.7156 A to 1.4088 A). Fitted currents beside the defect are
-		// pulled towards each other by the end effect, so allow 15% of
-		// the size; the step must still stand out by more than 10 sigma.
+		// The true step is the discontinuity at the defect, 1.7156 A
+		// upstream to 1.4088 A downstream (the scenario's currents): the
+		// levels either side carried to the defect by the smooth decay. It
+		// must match within its reported sigma and stand out by more than
+		// 10 sigma.
 		const trueStep = 1.4088 - 1.7156
-		if math.Abs(size-trueStep) > 0.15*math.Abs(trueStep) || math.Abs(size) < 10*sigma {
-			t.Errorf("step %.4g ± %.2g A, true %.4g A", size, sigma, trueStep)
+		if !within(size, trueStep, sigma) || math.Abs(size) < 10*sigma {
+			t.Errorf("step %.4g ± %.2g A, true %.4g A: %s", size, sigma, trueStep, f.Message)
 		}
 		if f.Severity != "warning" {
 			t.Errorf("step severity %q, want warning", f.Severity)
@@ -452,6 +453,12 @@ func TestDemo(t *testing.T) {
 			// is the only step.
 			if f.From <= 112.5 && 112.5 <= f.To && f.Values != nil && f.Values[0].Value < 0 {
 				fault = true
+				// 42 A upstream, 33 A downstream (the scenario's
+				// currents): sized from the levels either side, not
+				// from the smeared traverses beside the fault.
+				if v := f.Values[0]; v.Name != "step" || !within(v.Value, 33-42, v.Sigma) {
+					t.Errorf("earth fault sized %+v, want -9 A within %d sigma: %s", v, kSigma, f.Message)
+				}
 			} else {
 				t.Errorf("a step where there is none: %s", f.Message)
 			}

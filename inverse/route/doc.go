@@ -61,7 +61,23 @@
 // the same sign are one step spread over the stations between them (a fault
 // close to a traverse shows partly in the traverse's own current), reported
 // once with its total size. The step is bracketed between the two stations, whose chainages are the
-// finding's range; its size is dI with sigma s.
+// finding's range.
+//
+// Its size is not the difference of the bracketing stations: near the point
+// where current leaves, an infinite-line fit sees a semi-infinite conductor,
+// and at a distance d from its end at depth h a point above it sees the
+// fraction (1 + d/sqrt(d^2 + h^2))/2 of the current, so the fitted currents
+// change over several stations. The size is the difference of the levels
+// either side, fitted with the transition between them (see plateau.go):
+//
+//	I(x) = I_after + (I_before - I_after) (1 + (x_f - x)/sqrt((x_f - x)^2 + H^2))/2 + g (x - x_f)
+//
+// over the run's stations and up to eight sound ones beyond each end, with
+// x_f and H found by a grid search, a shared scatter tau^2 added to the
+// stations' own variances (DerSimonian & Laird 1986), and the sigma the
+// half-width of the profile interval of I_after - I_before, scaled by the
+// Birge ratio when that exceeds one. When the transition's shape places x_f
+// within the bracket the finding gives that location with its sigma.
 //
 // # Cover
 //

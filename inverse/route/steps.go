@@ -44,7 +44,7 @@ func steps(ps []Placed, set *Settings) []Finding {
 			}
 		}
 		if spike < 0 {
-			return append(out, stepFindings(u, d)...)
+			return append(out, stepFindings(u, d, set)...)
 		}
 		out = append(out, anomaly(u[spike-1], u[spike], u[spike+1]))
 		u = append(u[:spike:spike], u[spike+1:]...)
@@ -53,15 +53,15 @@ func steps(ps []Placed, set *Settings) []Finding {
 
 // detection holds the per-interval step test over a list of stations.
 type detection struct {
-	dI, s, excess, total []float64
-	isStep               []bool
+	dI, dx, s, excess, total []float64
+	isStep                   []bool
 }
 
 // detect tests every interval between successive stations of u.
 func detect(u []*Placed, set *Settings) *detection {
 	m := len(u) - 1 // intervals
-	d := &detection{dI: make([]float64, m), s: make([]float64, m), excess: make([]float64, m), total: make([]float64, m), isStep: make([]bool, m)}
-	dx := make([]float64, m)
+	d := &detection{dI: make([]float64, m), dx: make([]float64, m), s: make([]float64, m), excess: make([]float64, m), total: make([]float64, m), isStep: make([]bool, m)}
+	dx := d.dx
 	for j := 0; j < m; j++ {
 		d.dI[j] = u[j+1].Current - u[j].Current
 		dx[j] = u[j+1].Chainage - u[j].Chainage
@@ -91,10 +91,11 @@ func detect(u []*Placed, set *Settings) *detection {
 	}
 }
 
-// stepFindings turns runs of same-sign step intervals into findings.
-func stepFindings(u []*Placed, d *detection) []Finding {
-	var out []Finding
+// stepFindings turns runs of same-sign step intervals into findings, each
+// sized from the plateaus either side of it (see plateau.go).
+func stepFindings(u []*Placed, d *detection, set *Settings) []Finding {
 	m := len(d.isStep)
+	var runs [][2]int // station indices of each run's bracketing stations
 	for j := 0; j < m; j++ {
 		if !d.isStep[j] {
 			continue
@@ -103,24 +104,41 @@ func stepFindings(u []*Placed, d *detection) []Finding {
 		for last+1 < m && d.isStep[last+1] && (d.dI[last+1] > 0) == (d.dI[j] > 0) {
 			last++
 		}
-		a, b := u[j], u[last+1]
-		size := b.Current - a.Current
-		sigma := math.Hypot(a.CurrentSigma, b.CurrentSigma)
-		big := j
-		var excess, total float64
-		for i := j; i <= last; i++ {
+		runs = append(runs, [2]int{j, last + 1})
+		j = last
+	}
+	var out []Finding
+	for r, run := range runs {
+		ia, ib := run[0], run[1]
+		a, b := u[ia], u[ib]
+		big := ia
+		for i := ia; i < ib; i++ {
 			if math.Abs(d.dI[i]) > math.Abs(d.dI[big]) {
 				big = i
 			}
-			excess += d.excess[i]
-			total = math.Hypot(total, d.total[i])
 		}
+		lo, hi := 0, len(u)-1
+		if r > 0 {
+			lo = runs[r-1][1]
+		}
+		if r+1 < len(runs) {
+			hi = runs[r+1][0]
+		}
+		pl := plateau(u, set, ia, ib, lo, hi)
+		raw := b.Current - a.Current
+		rawSigma := math.Hypot(a.CurrentSigma, b.CurrentSigma)
+		size, sigma := pl.step, pl.sigma
 		verb, why := "falls", "current leaving the conductor"
-		if math.Abs(b.Current) > math.Abs(a.Current) {
+		if math.Abs(pl.after) > math.Abs(pl.before) {
 			verb, why = "rises", "current joining the conductor (a bond, a tee or another source)"
 		}
 		msg := fmt.Sprintf("current %s by %.3g ± %.2g A between %s (chainage %.1f m) and %s (%.1f m): %s between them",
 			verb, math.Abs(size), sigma, label(a), a.Chainage, label(b), b.Chainage, why)
+		var excess, total float64
+		for i := ia; i < ib; i++ {
+			excess += d.excess[i]
+			total = math.Hypot(total, d.total[i])
+		}
 		f := Finding{
 			Kind:     KindCurrentStep,
 			Severity: SeverityWarning,
@@ -130,22 +148,38 @@ func stepFindings(u []*Placed, d *detection) []Finding {
 			Message:  msg,
 			Values: []Value{
 				{Name: "step", Value: size, Sigma: sigma, Unit: "A"},
+				{Name: "current before", Value: pl.before, Sigma: pl.sigmaBefore, Unit: "A"},
+				{Name: "current after", Value: pl.after, Sigma: pl.sigmaAfter, Unit: "A"},
+				{Name: "change between bracketing stations", Value: raw, Sigma: rawSigma, Unit: "A"},
 				{Name: "step beyond trend", Value: excess, Sigma: total, Unit: "A"},
-				{Name: "current before", Value: a.Current, Sigma: a.CurrentSigma, Unit: "A"},
-				{Name: "current after", Value: b.Current, Sigma: b.CurrentSigma, Unit: "A"},
 			},
 		}
-		for i := j; i <= last+1; i++ {
+		// The shape of the transition places the step within the bracket
+		// when the stations beside it show part of it; a sharp step between
+		// two stations is placed only by the bracket.
+		resolved := pl.atSigma < 0.25*(b.Chainage-a.Chainage)
+		if resolved {
+			f.Position = pointAt(u[ia:ib+1], pl.at)
+			f.Values = append(f.Values, Value{Name: "location (chainage)", Value: pl.at, Sigma: pl.atSigma, Unit: "m"})
+		}
+		if pl.slope != 0 {
+			f.Values = append(f.Values, Value{Name: "trend", Value: pl.slope, Sigma: pl.slopeSigma, Unit: "A/m"})
+		}
+		for i := ia; i <= ib; i++ {
 			f.Keys = append(f.Keys, u[i].Key)
 		}
-		if last > j {
+		if ib-ia > 1 {
 			p, q := u[big], u[big+1]
-			f.Message = fmt.Sprintf("%s; most of it (%.3g ± %.2g A) between %s and %s", msg,
+			f.Message = fmt.Sprintf("%s; most of the change (%.3g ± %.2g A) between %s and %s", msg,
 				math.Abs(d.dI[big]), d.s[big], label(p), label(q))
 			f.Values = append(f.Values, Value{Name: "largest part", Value: d.dI[big], Sigma: d.s[big], Unit: "A"})
 		}
+		f.Message += fmt.Sprintf("; levels either side %.4g A and %.4g A (%d and %d stations)",
+			pl.before, pl.after, pl.nBefore, pl.nAfter)
+		if resolved {
+			f.Message += fmt.Sprintf("; most likely at chainage %.1f ± %.1f m", pl.at, pl.atSigma)
+		}
 		out = append(out, f)
-		j = last
 	}
 	return out
 }
@@ -205,6 +239,27 @@ func trend(dI, dx, s []float64, skip []bool, j, w int) (g, sigma float64) {
 	// for large n, and less for small n, so this errs on the safe side.
 	sigma = math.Sqrt(math.Pi / 2 * (v / float64(n)) / float64(n))
 	return g, sigma
+}
+
+// pointAt interpolates the stations' points (in route order) at chainage
+// c, clamped to their range.
+func pointAt(ps []*Placed, c float64) [3]float64 {
+	for k := 0; k+1 < len(ps); k++ {
+		a, b := ps[k], ps[k+1]
+		if c > b.Chainage && k+2 < len(ps) {
+			continue
+		}
+		t := 0.0
+		if b.Chainage > a.Chainage {
+			t = math.Min(math.Max((c-a.Chainage)/(b.Chainage-a.Chainage), 0), 1)
+		}
+		var p [3]float64
+		for i := range p {
+			p[i] = a.Point[i] + t*(b.Point[i]-a.Point[i])
+		}
+		return p
+	}
+	return ps[0].Point
 }
 
 func mid(a, b [3]float64) [3]float64 {

@@ -1,0 +1,417 @@
+package route
+
+import (
+	"math"
+	"sort"
+)
+
+// Sizing a step from the levels either side of it.
+//
+// Each group is fitted as an infinite line, but near a point where current
+// leaves the conductor a traverse sees a semi-infinite conductor: at a
+// distance d along the route from the end of a semi-infinite line at depth
+// h a point above it sees the fraction
+//
+//	f(d) = (1 + d / sqrt(d^2 + h^2)) / 2
+//
+// of the current (Biot-Savart integrated over a half line); readings to the
+// side of a traverse see less still, so the fitted currents change over
+// several stations and the difference between the two stations that
+// bracket the change understates the step. The step is instead sized from
+// the levels on either side, fitted together with the transition between
+// them:
+//
+//	I(x) = I_after + (I_before - I_after) f(x_f - x; H) + g (x - x_f)
+//
+// with the location x_f (within the bracket) and the effective width H
+// found by a grid search, the levels (and the smooth trend g, kept only
+// when it differs from zero by more than two standard deviations) by
+// weighted least squares at each grid point. As H tends to zero f becomes a
+// sharp step; a gradual transition is used only when it lowers chi-square
+// by more than sharpZ^2 (in units of the Birge scale) against the sharp
+// step, as the slope only when it is more than three sigma from zero. The stations used are the run's own and up to
+// plateauStations+maxTransition sound ones beyond each end (never crossing
+// a neighbouring step; poor fits, with a Problem or a reduced chi-square
+// over the limit, left out); stations more than outlierZ robust standard
+// deviations from the fit are dropped and the fit repeated once.
+//
+// Scatter beyond the stations' own sigmas is taken as a variance tau^2
+// shared by every station (a random-effects model) and added to each
+// station's before the final fit. The covariance of the levels is then
+// scaled by the Birge ratio chi2/DOF when that exceeds one, so that the sigma of the step reflects the scatter of
+// the stations as well as their fit sigmas. The sigma is the half-width of
+// the profile interval: the steps whose chi-square, minimised over the
+// levels and the slope, lies within that scale of the minimum at any grid
+// point of x_f and H; it includes the uncertainty of x_f and H. The same
+// region gives the location's uncertainty.
+const (
+	plateauStations = 5
+	maxTransition   = 3
+	outlierZ        = 3.5
+	gridX, gridH    = 41, 19
+	sharpZ          = 3.0
+)
+
+// levels is the estimate of one step.
+type levels struct {
+	before, after, sigmaBefore, sigmaAfter float64
+	step, sigma                            float64
+	slope, slopeSigma                      float64
+	at, atSigma, width                     float64
+	nBefore, nAfter                        int
+}
+
+// clean reports whether a station's fit is sound enough to set a level.
+func clean(p *Placed, set *Settings) bool {
+	if p.Problem != "" {
+		return false
+	}
+	if maxChi := set.maxReducedChi2(); maxChi > 0 && p.DOF > 0 && p.Chi2/float64(p.DOF) > maxChi {
+		return false
+	}
+	return true
+}
+
+// plateau sizes the step whose bracketing stations are u[ia] and u[ib];
+// stations u[lo..hi] may set the levels (lo and hi are the neighbouring
+// steps' bracketing stations).
+func plateau(u []*Placed, set *Settings, ia, ib, lo, hi int) levels {
+	var idx []int
+	n := 0
+	for i := ia - 1; i >= lo && n < plateauStations+maxTransition; i-- {
+		if clean(u[i], set) {
+			idx = append(idx, i)
+			n++
+		}
+	}
+	for i := ia; i <= ib; i++ {
+		if i == ia || i == ib || clean(u[i], set) {
+			idx = append(idx, i)
+		}
+	}
+	n = 0
+	for i := ib + 1; i <= hi && n < plateauStations+maxTransition; i++ {
+		if clean(u[i], set) {
+			idx = append(idx, i)
+			n++
+		}
+	}
+	xa, xb := u[ia].Chainage, u[ib].Chainage
+	pts := make([]lvPoint, 0, len(idx))
+	for _, i := range idx {
+		pts = append(pts, lvPoint{x: u[i].Chainage, y: u[i].Current, s: u[i].CurrentSigma})
+	}
+	weigh(pts)
+	sp := (xb - xa) / float64(ib-ia)
+	if sp <= 0 {
+		sp = 1
+	}
+	g := search(pts, xa, xb, sp)
+	// Scatter beyond the fit sigmas (model error that each group's own
+	// sigma does not see: a bend, a neighbouring conductor) is shared by
+	// all stations alike: weigh them by 1/(s^2 + tau^2) and search again.
+	if tau2 := excess(pts, &g.best); tau2 > 0 {
+		for k := range pts {
+			pts[k].w = 1 / (1/pts[k].w + tau2)
+		}
+		g = search(pts, xa, xb, sp)
+	}
+	// Leave out outliers and search again.
+	z := make([]float64, len(pts))
+	for k, p := range pts {
+		z[k] = math.Abs(p.y-g.best.at(p.x)) * math.Sqrt(p.w)
+	}
+	lim := outlierZ * math.Max(1, 1.4826*medianOf(z))
+	var kept []lvPoint
+	for k, p := range pts {
+		if z[k] <= lim {
+			kept = append(kept, p)
+		}
+	}
+	if len(kept) < len(pts) && len(kept) >= 2 {
+		pts = kept
+		g = search(pts, xa, xb, sp)
+	}
+	f := g.best
+	var lv levels
+	for _, p := range pts {
+		if p.x < f.xf {
+			lv.nBefore++
+		} else {
+			lv.nAfter++
+		}
+	}
+	lv.before, lv.after = f.c[0], f.c[1]
+	lv.sigmaBefore, lv.sigmaAfter = math.Sqrt(f.cov[0][0]), math.Sqrt(f.cov[1][1])
+	lv.step = lv.after - lv.before
+	lv.sigma = g.spread
+	if f.slope {
+		lv.slope, lv.slopeSigma = f.c[2], math.Sqrt(f.cov[2][2])
+	}
+	lv.at, lv.atSigma, lv.width = f.xf, g.atSigma, f.h
+	return lv
+}
+
+// excess returns the variance tau^2 that, added to every station's own,
+// makes the chi-square of fit f equal its degrees of freedom (the
+// method-of-moments estimate of a random-effects model, DerSimonian & Laird,
+// Controlled Clinical Trials 7:177-188, 1986, solved here by bisection);
+// zero when the scatter does not exceed the sigmas.
+func excess(pts []lvPoint, f *lvFit) float64 {
+	np := 2
+	if f.slope {
+		np = 3
+	}
+	dof := float64(len(pts) - np)
+	if dof <= 0 || f.chi2 <= dof {
+		return 0
+	}
+	r2 := make([]float64, len(pts))
+	var hi float64
+	for k, p := range pts {
+		r := p.y - f.at(p.x)
+		r2[k] = r * r
+		hi = math.Max(hi, r*r)
+	}
+	chi := func(t float64) float64 {
+		var c float64
+		for k, p := range pts {
+			c += r2[k] / (1/p.w + t)
+		}
+		return c
+	}
+	lo := 0.0
+	for range 60 {
+		m := (lo + hi) / 2
+		if chi(m) > dof {
+			lo = m
+		} else {
+			hi = m
+		}
+	}
+	return (lo + hi) / 2
+}
+
+// gridResult is the outcome of search: the best fit, the spread of the
+// step and the half-width of the location over the grid points within the
+// Birge scale of the minimum chi-square (spread is the step's sigma).
+type gridResult struct {
+	best            lvFit
+	spread, atSigma float64
+}
+
+// search fits the level model at every grid point: x_f across [xa, xb], H
+// on a logarithmic grid from 0.02 to 3 station spacings.
+func search(pts []lvPoint, xa, xb, sp float64) gridResult {
+	fits := make([]lvFit, 0, gridX*gridH)
+	best, sharp := -1, -1
+	for i := range gridX {
+		xf := xa + (xb-xa)*(float64(i)+0.5)/gridX
+		for j := range gridH {
+			h := 0.02 * sp * math.Pow(150, float64(j)/(gridH-1))
+			f := fitLevels(pts, xf, h)
+			fits = append(fits, f)
+			if best < 0 || f.chi2 < fits[best].chi2 {
+				best = len(fits) - 1
+			}
+			if j == 0 && (sharp < 0 || f.chi2 < fits[sharp].chi2) {
+				sharp = len(fits) - 1
+			}
+		}
+	}
+	// A gradual transition must earn its keep: unless it lowers chi-square
+	// by more than sharpZ^2 (in units of the Birge scale) the step is
+	// taken as sharp, and only the sharp grid points are used.
+	if fits[sharp].chi2-fits[best].chi2 <= sharpZ*sharpZ*fits[best].scale {
+		best = sharp / gridH // its index among the sharp points kept below
+		keep := fits[:0]
+		for k, f := range fits {
+			if k%gridH == 0 {
+				keep = append(keep, f)
+			}
+		}
+		fits = keep
+	}
+	r := gridResult{best: fits[best]}
+	// For fixed x_f and H the model is linear, so chi-square grows as
+	// (s - s_k)^2 / v_k about that grid point's step s_k (v_k its unscaled
+	// variance): the steps within the Birge scale of the minimum form the
+	// union of s_k ± sqrt((lim - chi2_k) v_k), the profile interval.
+	lim := r.best.chi2 + r.best.scale
+	sb := r.best.c[1] - r.best.c[0]
+	lo, hi := r.best.xf, r.best.xf
+	for _, f := range fits {
+		if f.chi2 > lim {
+			continue
+		}
+		v := math.Max(f.cov[0][0]+f.cov[1][1]-2*f.cov[0][1], 0) / f.scale
+		hw := math.Sqrt((lim - f.chi2) * v)
+		sk := f.c[1] - f.c[0]
+		r.spread = math.Max(r.spread, math.Max(sk+hw-sb, sb-(sk-hw)))
+		lo, hi = math.Min(lo, f.xf), math.Max(hi, f.xf)
+	}
+	// Half the width of the accepted range, widened by half a grid cell.
+	r.atSigma = (hi-lo)/2 + (xb-xa)/(2*gridX)
+	return r
+}
+
+// lvPoint is one station: chainage, current, sigma and weight.
+type lvPoint struct {
+	x, y, s, w float64
+}
+
+// weigh sets the weights 1/s^2; a station with no sigma takes the smallest
+// sigma given (or 1 A when none is given, the scatter then setting the
+// uncertainty).
+func weigh(pts []lvPoint) {
+	floor := math.Inf(1)
+	for _, p := range pts {
+		if p.s > 0 {
+			floor = math.Min(floor, p.s)
+		}
+	}
+	if math.IsInf(floor, 1) {
+		floor = 1
+	}
+	for i := range pts {
+		s := pts[i].s
+		if s <= 0 {
+			s = floor
+		}
+		pts[i].w = 1 / (s * s)
+	}
+}
+
+// lvFit is a weighted least-squares fit of the levels at one grid point:
+// c[0] before, c[1] after, c[2] the slope when slope is true; cov is
+// already scaled by the Birge ratio scale.
+type lvFit struct {
+	xf, h       float64
+	c           [3]float64
+	cov         [3][3]float64
+	chi2, scale float64
+	slope       bool
+}
+
+// frac is the fraction of the upstream level seen at x.
+func (f *lvFit) frac(x float64) float64 {
+	d := f.xf - x
+	return (1 + d/math.Hypot(d, f.h)) / 2
+}
+
+func (f *lvFit) at(x float64) float64 {
+	w := f.frac(x)
+	return f.c[0]*w + f.c[1]*(1-w) + f.c[2]*(x-f.xf)
+}
+
+// fitLevels fits the two levels with a shared slope, keeping the slope only
+// when the data support it (more than two sigma from zero).
+func fitLevels(pts []lvPoint, xf, h float64) lvFit {
+	if len(pts) >= 4 {
+		f := solveLevels(pts, xf, h, true)
+		if f.slope && math.Abs(f.c[2]) > 3*math.Sqrt(f.cov[2][2]) {
+			return f
+		}
+	}
+	return solveLevels(pts, xf, h, false)
+}
+
+// solveLevels solves the normal equations of the level model.
+func solveLevels(pts []lvPoint, xf, h float64, slope bool) lvFit {
+	np := 2
+	if slope {
+		np = 3
+	}
+	f := lvFit{xf: xf, h: h}
+	var a [3][3]float64
+	var b [3]float64
+	for _, p := range pts {
+		w := f.frac(p.x)
+		row := [3]float64{w, 1 - w, p.x - xf}
+		for i := range np {
+			b[i] += p.w * row[i] * p.y
+			for j := range np {
+				a[i][j] += p.w * row[i] * row[j]
+			}
+		}
+	}
+	inv, ok := invert(a, np)
+	if !ok {
+		if slope {
+			return solveLevels(pts, xf, h, false)
+		}
+		f.chi2 = math.Inf(1)
+		return f
+	}
+	f.slope = slope
+	for i := range np {
+		for j := range np {
+			f.c[i] += inv[i][j] * b[j]
+		}
+	}
+	for _, p := range pts {
+		r := p.y - f.at(p.x)
+		f.chi2 += p.w * r * r
+	}
+	f.scale = 1
+	if dof := len(pts) - np; dof > 0 {
+		f.scale = math.Max(1, f.chi2/float64(dof))
+	}
+	for i := range np {
+		for j := range np {
+			f.cov[i][j] = inv[i][j] * f.scale
+		}
+	}
+	return f
+}
+
+// invert inverts the leading n-by-n block (n <= 3) of a symmetric matrix by
+// Gauss-Jordan elimination; ok is false when it is singular.
+func invert(a [3][3]float64, n int) (inv [3][3]float64, ok bool) {
+	for i := range n {
+		inv[i][i] = 1
+	}
+	for c := range n {
+		p := c
+		for r := c + 1; r < n; r++ {
+			if math.Abs(a[r][c]) > math.Abs(a[p][c]) {
+				p = r
+			}
+		}
+		if a[p][c] == 0 {
+			return inv, false
+		}
+		a[c], a[p] = a[p], a[c]
+		inv[c], inv[p] = inv[p], inv[c]
+		d := a[c][c]
+		for j := range n {
+			a[c][j] /= d
+			inv[c][j] /= d
+		}
+		for r := range n {
+			if r == c || a[r][c] == 0 {
+				continue
+			}
+			m := a[r][c]
+			for j := range n {
+				a[r][j] -= m * a[c][j]
+				inv[r][j] -= m * inv[c][j]
+			}
+		}
+	}
+	return inv, true
+}
+
+// medianOf returns the median of v (0 when empty) without modifying it.
+func medianOf(v []float64) float64 {
+	if len(v) == 0 {
+		return 0
+	}
+	s := append([]float64(nil), v...)
+	sort.Float64s(s)
+	n := len(s)
+	if n%2 == 1 {
+		return s[n/2]
+	}
+	return (s[n/2-1] + s[n/2]) / 2
+}
