@@ -17,7 +17,10 @@
 // gateway knows the broker stored it.
 //
 // Dead-letter reasons: malformed, oversized, out-of-order, late,
-// unknown-sensor, unknown-asset. Each dead letter carries the headers
+// unknown-sensor. (Data for an asset that no site file lists is never read;
+// it stays in UC_DATA until the retention time.) The broker itself refuses
+// messages above its maximum payload (8 MiB for the embedded server) at
+// publication. Each dead letter carries the headers
 // Uc-Reason, Uc-Error (the full message, naming row and column), Uc-Subject
 // and Uc-Seq (the sequence in UC_DATA).
 //
