@@ -97,10 +97,22 @@ func simCurrent(k int) float64 { return 10 + 0.5*float64(k) }
 // writeSimLog writes seconds of data as CSV (time, group, bx, by, bz) and
 // returns the window means per sensor, for a direct fit.
 func writeSimLog(t *testing.T, path string, seconds float64) (means map[int][][3]float64) {
+	return writeSimLogAs(t, path, seconds, false)
+}
+
+// writeSimLogAs writes the simulated log; withPositions writes the columns
+// time, x, y, z, sensor, win, bx, by, bz instead, so that locate can fit
+// each window (--group-by win) and replay names sensors with
+// --columns group=sensor.
+func writeSimLogAs(t *testing.T, path string, seconds float64, withPositions bool) (means map[int][][3]float64) {
 	t.Helper()
 	rng := rand.New(rand.NewPCG(6, 6))
 	var b bytes.Buffer
-	b.WriteString("time,group,bx,by,bz\n")
+	if withPositions {
+		b.WriteString("time,x,y,z,sensor,win,bx,by,bz\n")
+	} else {
+		b.WriteString("time,group,bx,by,bz\n")
+	}
 	n := int(seconds * simRate)
 	perWin := int(simWindow * simRate)
 	means = map[int][][3]float64{}
@@ -119,7 +131,11 @@ func writeSimLog(t *testing.T, path string, seconds float64) (means map[int][][3
 				v[j] = math.Round(v[j]*1e4) / 1e4
 				means[k][s][j] += v[j] / float64(perWin)
 			}
-			fmt.Fprintf(&b, "%.4f,s%d,%.4f,%.4f,%.4f\n", tt, s, v[0], v[1], v[2])
+			if withPositions {
+				fmt.Fprintf(&b, "%.4f,%g,%g,%g,s%d,w%02d,%.4f,%.4f,%.4f\n", tt, pos[0], pos[1], pos[2], s, k, v[0], v[1], v[2])
+			} else {
+				fmt.Fprintf(&b, "%.4f,s%d,%.4f,%.4f,%.4f\n", tt, s, v[0], v[1], v[2])
+			}
 		}
 	}
 	if err := os.WriteFile(path, b.Bytes(), 0o644); err != nil {
@@ -440,5 +456,94 @@ func TestServeReplayUsage(t *testing.T) {
 				t.Fatalf("exit %d, stderr %q; want exit %d and %q", code, errOut.String(), tc.code, tc.want)
 			}
 		})
+	}
+}
+
+// Reliability (issue 6): estimates from replaying a simulated log through
+// serve agree with locate on the same log within their uncertainties
+// (locate fits the geometry of each window; serve holds it).
+func TestReplayAgreesWithLocate(t *testing.T) {
+	if testing.Short() {
+		t.Skip("runs serve, replay and locate")
+	}
+	dir := t.TempDir()
+	srv, err := broker.StartServer(broker.ServerConfig{StoreDir: filepath.Join(dir, "store"), MQTTPort: -1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer srv.Shutdown()
+	site := filepath.Join(dir, "site.toml")
+	os.WriteFile(site, []byte(simSite), 0o644)
+	const seconds = 5.0
+	logPath := filepath.Join(dir, "fenwick-fixed.csv")
+	writeSimLogAs(t, logPath, seconds, true)
+	nWin := int(seconds / simWindow)
+
+	ctx, cancel := context.WithCancel(context.Background())
+	defer cancel()
+	served := make(chan int, 1)
+	var serveErr syncBuffer
+	go func() {
+		served <- run(ctx, []string{"serve", "--config", site, "--broker", srv.ClientURL(), "--worker", "w1"}, &bytes.Buffer{}, &serveErr)
+	}()
+	var out, errOut bytes.Buffer
+	if c := run(ctx, []string{"replay", logPath, "--asset", "fenwick-lane", "--columns", "group=sensor", "--speed", "0", "--broker", srv.ClientURL()}, &out, &errOut); c != 0 {
+		t.Fatalf("replay: exit %d: %s", c, errOut.String())
+	}
+	nc, err := broker.Connect(srv.ClientURL(), "test", broker.Auth{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer nc.Close()
+	js, _ := jetstream.New(nc)
+	pollUntil(t, 30*time.Second, fmt.Sprintf("%d estimates", nWin), func() bool { return len(readEstimates(t, js)) >= nWin })
+	cancel()
+	if c := <-served; c != 0 {
+		t.Fatalf("serve exited %d: %s", c, serveErr.String())
+	}
+
+	out.Reset()
+	errOut.Reset()
+	if c := run(context.Background(), []string{"locate", logPath, "--group-by", "win", "--count", "1", "--json"}, &out, &errOut); c != 0 {
+		t.Fatalf("locate: exit %d: %s", c, errOut.String())
+	}
+	var doc struct {
+		Groups []struct {
+			Key     string `json:"key"`
+			OK      bool   `json:"ok"`
+			Sources []struct {
+				Current      float64 `json:"current_a"`
+				CurrentSigma float64 `json:"current_sigma_a"`
+			} `json:"sources"`
+		} `json:"groups"`
+	}
+	if err := json.Unmarshal(out.Bytes(), &doc); err != nil {
+		t.Fatal(err)
+	}
+	located := map[string][2]float64{}
+	for _, g := range doc.Groups {
+		if g.OK && len(g.Sources) == 1 {
+			located[g.Key] = [2]float64{g.Sources[0].Current, g.Sources[0].CurrentSigma}
+		}
+	}
+	k0 := int64(math.Floor(simT0/simWindow + 1e-7))
+	ests := readEstimates(t, js)
+	if len(ests) != nWin {
+		t.Fatalf("%d estimates, want %d", len(ests), nWin)
+	}
+	for _, e := range ests {
+		key := fmt.Sprintf("w%02d", e.Window-k0)
+		l, ok := located[key]
+		if !ok {
+			t.Errorf("locate has no fit for window %s", key)
+			continue
+		}
+		c := e.Conductors[0]
+		// Four combined sigma (the e2e tests' criterion); the sign of a
+		// fitted line's direction is the fit's choice, so compare magnitudes.
+		tol := 4 * math.Hypot(c.CurrentSigma, l[1])
+		if d := math.Abs(math.Abs(c.Current) - math.Abs(l[0])); d > tol {
+			t.Errorf("window %s: serve %.4f +- %.2g A, locate %.4f +- %.2g A", key, c.Current, c.CurrentSigma, l[0], l[1])
+		}
 	}
 }
