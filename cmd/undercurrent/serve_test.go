@@ -38,6 +38,17 @@ func TestServeHelperProcess(t *testing.T) {
 	if args == "" {
 		t.Skip("helper process entry point")
 	}
+	// Never outlive the test: exit if the parent goes away, and after two
+	// minutes in any case.
+	parent := os.Getppid()
+	go func() {
+		for start := time.Now(); time.Since(start) < 2*time.Minute; time.Sleep(200 * time.Millisecond) {
+			if os.Getppid() != parent {
+				break
+			}
+		}
+		os.Exit(3)
+	}()
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 	code := run(ctx, strings.Split(args, "\x1f"), os.Stdout, os.Stderr)
 	stop()
