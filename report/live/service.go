@@ -70,9 +70,10 @@ type Service struct {
 }
 
 type holding struct {
-	rev    uint64
-	cancel context.CancelFunc
-	done   chan error
+	rev     uint64
+	cancel  context.CancelFunc
+	done    chan error
+	leaving bool // draining to hand the asset to another worker
 }
 
 // New checks the configuration; Run does the work.
@@ -255,6 +256,23 @@ func (s *Service) leaseRound(ctx context.Context, order []string) {
 	}
 	if ctx.Err() != nil {
 		return
+	}
+	// More workers than when we took our assets: hand the surplus back,
+	// last in our order first. Each drains (complete windows published,
+	// checkpoint written) and its lease is released at a later round.
+	active := 0
+	for _, h := range s.held {
+		if !h.leaving {
+			active++
+		}
+	}
+	for i := len(order) - 1; i >= 0 && active > limit; i-- {
+		if h, ok := s.held[order[i]]; ok && !h.leaving {
+			s.log.Info("handing asset over to share the work", "asset", order[i], "workers", workers)
+			h.leaving = true
+			h.cancel()
+			active--
+		}
 	}
 	for _, name := range order {
 		if len(s.held) >= limit {

@@ -170,7 +170,9 @@ func sample(s, k, i int) (bx, by, bz float64) {
 
 // publish sends seconds of 100 Hz data for sensors s0..s2 from time
 // t0+from in 0.1 s batches, sensors interleaved.
-func (h *harness) publish(from, seconds float64) {
+func (h *harness) publish(from, seconds float64) { h.publishAsset("fenwick-lane", from, seconds) }
+
+func (h *harness) publishAsset(asset string, from, seconds float64) {
 	h.t.Helper()
 	ctx, cancel := context.WithTimeout(context.Background(), 60*time.Second)
 	defer cancel()
@@ -178,7 +180,7 @@ func (h *harness) publish(from, seconds float64) {
 	for b := 0; b < nb; b++ {
 		start := from + 0.1*float64(b)
 		for s := 0; s < 3; s++ {
-			bt := &broker.Batch{Asset: "fenwick-lane", Sensor: fmt.Sprintf("s%d", s)}
+			bt := &broker.Batch{Asset: asset, Sensor: fmt.Sprintf("s%d", s)}
 			for i := 0; i < 10; i++ {
 				tt := start + float64(i)/100
 				k := int(math.Floor(tt/0.5 + 1e-7))
@@ -197,12 +199,14 @@ func (h *harness) publish(from, seconds float64) {
 	}
 }
 
-func (h *harness) estimates() []Estimate {
+func (h *harness) estimates() []Estimate { return h.estimatesOf("fenwick-lane") }
+
+func (h *harness) estimatesOf(asset string) []Estimate {
 	h.t.Helper()
 	var out []Estimate
 	ctx, cancel := context.WithTimeout(context.Background(), 20*time.Second)
 	defer cancel()
-	err := scan(ctx, h.js, broker.StreamEstimates, broker.EstimateSubject("fenwick-lane"), func(d []byte) bool {
+	err := scan(ctx, h.js, broker.StreamEstimates, broker.EstimateSubject(asset), func(d []byte) bool {
 		var e Estimate
 		if err := json.Unmarshal(d, &e); err != nil {
 			h.t.Fatal(err)
@@ -494,4 +498,55 @@ func TestBrokerRestartUnderService(t *testing.T) {
 	time.Sleep(200 * time.Millisecond)
 	checkExactlyOnce(t, h.estimates(), 8)
 	r.stop(t)
+}
+
+// Scale out (issue 6): a worker that joins later gets a share of the
+// assets (the first hands one over after draining it), and each asset
+// still has exactly one estimate per window.
+func TestWorkSharing(t *testing.T) {
+	if testing.Short() {
+		t.Skip("runs a broker and two workers")
+	}
+	h := newHarness(t)
+	two := testSiteText + strings.Replace(testSiteText[strings.Index(testSiteText, "[[asset]]"):], `name = "fenwick-lane"`, `name = "kestrel-moor"`, 1)
+	site := testSite(t, two)
+	a := h.start(site, "wa")
+	holders := func() map[string]string {
+		out := map[string]string{}
+		kv, err := h.js.KeyValue(context.Background(), broker.BucketLease)
+		if err != nil {
+			return out
+		}
+		for _, asset := range []string{"fenwick-lane", "kestrel-moor"} {
+			if e, err := kv.Get(context.Background(), asset); err == nil {
+				out[asset] = string(e.Value())
+			}
+		}
+		return out
+	}
+	waitFor(t, 20*time.Second, "wa to hold both assets", func() bool {
+		hs := holders()
+		return hs["fenwick-lane"] == "wa" && hs["kestrel-moor"] == "wa"
+	})
+	assets := []string{"fenwick-lane", "kestrel-moor"}
+	for _, as := range assets {
+		h.publishAsset(as, 0, 1)
+	}
+	b := h.start(site, "wb")
+	waitFor(t, 20*time.Second, "one asset each", func() bool {
+		hs := holders()
+		return len(hs) == 2 && hs["fenwick-lane"] != hs["kestrel-moor"]
+	})
+	for _, as := range assets {
+		h.publishAsset(as, 1, 2)
+	}
+	for _, as := range assets {
+		waitFor(t, 30*time.Second, "6 estimates of "+as, func() bool { return len(h.estimatesOf(as)) >= 6 })
+	}
+	time.Sleep(200 * time.Millisecond)
+	for _, as := range assets {
+		checkExactlyOnce(t, h.estimatesOf(as), 6) // both assets get the same data
+	}
+	a.stop(t)
+	b.stop(t)
 }
