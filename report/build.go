@@ -25,6 +25,12 @@ type Fit struct {
 	// Dipole is true when the caller found the readings better explained
 	// by a point dipole (a magnetised object) than by a current.
 	Dipole bool
+	// Settings are the settings Result was fitted with (Background,
+	// ReferenceZ and MinDepth are used when Build searches for a
+	// magnetised object, see dipole.go); nil means the defaults.
+	Settings *inverse.Settings
+
+	object *route.Object // the magnetised object found by checkDipoles
 }
 
 // BuildSettings tunes Build. A nil *BuildSettings or a zero field takes the
@@ -135,12 +141,6 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 		}
 	}
 
-	stations := make([]route.Station, 0, len(fits))
-	for _, f := range fits {
-		g, st := buildGroup(&f, ac, refSigma, bs.ProfileMax)
-		d.Groups = append(d.Groups, g)
-		stations = append(stations, st)
-	}
 	rs := &route.Settings{StepK: bs.StepK, MinCover: bs.MinCover, CoverCode: bs.CoverCode}
 	if d.DepthReference.Kind == DepthBelowSensors {
 		rs.SensorHeight = bs.SensorHeight
@@ -148,9 +148,32 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 	if refSigma == 0 {
 		rs.MaxReducedChi2 = -1
 	}
-	r, err := route.Build(stations, rs)
+	var stations []route.Station
+	analyse := func() (*route.Route, error) {
+		d.Groups = nil
+		stations = make([]route.Station, 0, len(fits))
+		for _, f := range fits {
+			g, st := buildGroup(&f, ac, refSigma, bs.ProfileMax)
+			d.Groups = append(d.Groups, g)
+			stations = append(stations, st)
+		}
+		r, err := route.Build(stations, rs)
+		if err != nil {
+			return nil, fmt.Errorf("report: %w", err)
+		}
+		return r, nil
+	}
+	r, err := analyse()
 	if err != nil {
-		return nil, fmt.Errorf("report: %w", err)
+		return nil, err
+	}
+	// Groups the route finds anomalous may hold a magnetised object:
+	// refit them with a dipole (dipole.go) and analyse again.
+	fits = append([]Fit(nil), fits...)
+	if len(fits) > 1 && checkDipoles(fits, r) {
+		if r, err = analyse(); err != nil {
+			return nil, err
+		}
 	}
 	d.SetRoute(r)
 	if len(stations) < 2 {
@@ -198,7 +221,10 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int) (Group, route
 		g.Problem = ambiguity(res.Criteria)
 	}
 	if f.Dipole && g.Problem == "" {
-		g.Problem = "a point dipole explains the readings better than a current"
+		g.Problem = "a magnetised object beside the conductor: fitted with a point dipole"
+	}
+	if f.object != nil {
+		st.Object = f.object
 	}
 	if len(res.Sources) > 0 {
 		s := res.Sources[0]
@@ -265,6 +291,10 @@ func buildSource(s inverse.SourceEstimate, pts [][3]float64, ac bool) Source {
 	if ac {
 		ph, phs := s.Phase, s.PhaseSigma
 		out.Phase, out.PhaseSigma = &ph, &phs
+	}
+	if kind == KindDipole {
+		m, ms := s.Moment, s.MomentSigma
+		out.Moment, out.MomentSigma = &m, &ms
 	}
 	id := s.Identifiable
 	for _, q := range []struct {

@@ -70,11 +70,14 @@ func runDemo(ctx context.Context, out string, stdout, progress io.Writer) error 
 		return err
 	}
 	// The locate settings a surveyor would give for this survey: the
-	// cable's frequency, a window of ten cycles, one fit per traverse, the
-	// sensor's height above ground and a minimum cover for 11 kV cables.
+	// cable's frequency, a window of five cycles (0.1 s: short enough that
+	// the sensor, walked at 1 m/s, moves only 0.1 m while the window
+	// averages the field; see locate's window-travel warning), one fit per
+	// traverse, the sensor's height above ground and a minimum cover for
+	// 11 kV cables.
 	o := &locateOptions{
 		freq:         50,
-		window:       0.2,
+		window:       0.1,
 		count:        "auto",
 		groupBy:      ingest.ColGroup,
 		sensorHeight: sc.Sensor.Height,
@@ -87,7 +90,7 @@ func runDemo(ctx context.Context, out string, stdout, progress io.Writer) error 
 		return err
 	}
 	o.given = map[string]string{
-		"freq": "50", "window": "0.2", "group-by": ingest.ColGroup,
+		"freq": "50", "window": "0.1", "group-by": ingest.ColGroup,
 		"sensor-height": strconv.FormatFloat(sc.Sensor.Height, 'g', -1, 64),
 		"min-cover":     "0.6", "cover-code": o.coverCode,
 	}
@@ -115,7 +118,7 @@ func runDemo(ctx context.Context, out string, stdout, progress io.Writer) error 
 	fmt.Fprintf(stdout, "simulated %s: %d readings on %d traverses (%s)\n", simulate.DemoPath, s.Len(), len(sc.Lines()), sc.Site)
 	printFindings(stdout, doc)
 	fmt.Fprintf(stdout, "done in %.1f s. Open the crew report: %s\n", time.Since(start).Seconds(), filepath.Join(out, "report.html"))
-	fmt.Fprintf(stdout, "the log and the other results are beside it; rerun the fit with:\n  undercurrent locate --freq 50 --window 0.2 --group-by group --sensor-height %g --min-cover 0.6 %s\n",
+	fmt.Fprintf(stdout, "the log and the other results are beside it; rerun the fit with:\n  undercurrent locate --freq 50 --window 0.1 --group-by group --sensor-height %g --min-cover 0.6 %s\n",
 		sc.Sensor.Height, filepath.Join(out, demoLog))
 	return nil
 }

@@ -462,7 +462,33 @@ func TestDemo(t *testing.T) {
 			} else {
 				t.Errorf("a step where there is none: %s", f.Message)
 			}
-		case "current-anomaly", "dipole-anomaly":
+		case "dipole-anomaly":
+			// The buried steel object of the scenario, at (29.67, 5.99)
+			// and 0.60 m below ground (0.90 m below the sensors carried
+			// 0.3 m up): found by a dipole search beside T07, placed
+			// within its reported sigmas.
+			if strings.Join(f.Groups, ",") != "T07" {
+				t.Errorf("a magnetised object away from T07: %s", f.Message)
+				continue
+			}
+			object = true
+			want := map[string]float64{"east": 29.67, "north": 5.99, "depth": 0.90}
+			seen := 0
+			for _, v := range f.Values {
+				if w, ok := want[v.Name]; ok {
+					seen++
+					if !within(v.Value, w, v.Sigma) {
+						t.Errorf("object %s %.3f ± %.3f m, true %.2f m", v.Name, v.Value, v.Sigma, w)
+					}
+				}
+			}
+			if seen != 3 {
+				t.Errorf("object finding gives %d of east, north and depth: %+v", seen, f.Values)
+			}
+			if d := math.Hypot(f.Position[0]-29.67, f.Position[1]-5.99); d > 0.5 {
+				t.Errorf("object finding placed at %v, %.2f m from the object", f.Position, d)
+			}
+		case "current-anomaly":
 			// The steel object lies 4 m from the cable at T07 (chainage
 			// 30 m); the finding may name T07's neighbours too.
 			if strings.Contains(strings.Join(f.Groups, ","), "T07") && f.From >= 24.9 && f.From <= 30.1 && f.To >= 29.9 && f.To <= 35.1 {

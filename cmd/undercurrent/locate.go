@@ -189,7 +189,7 @@ practice prevail.
 Examples:
   undercurrent locate --group-by group survey.csv
   undercurrent locate --base base.min --calibration cal.json --group-by group survey.csv -o results
-  undercurrent locate --freq 50 --window 0.2 --group-by group --sensor-height 0.3 --min-cover 0.6 --cover-code "UK 11 kV practice" walk.parquet -o results
+  undercurrent locate --freq 50 --window 0.1 --group-by group --sensor-height 0.3 --min-cover 0.6 --cover-code "UK 11 kV practice" walk.parquet -o results
   undercurrent locate --count 2 --json line7.csv > line7.json`,
 		setFlags: o.setFlags,
 		run: func(ctx context.Context, fs *pflag.FlagSet, args []string, stdout, stderr io.Writer) error {
@@ -436,13 +436,19 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 	return nil
 }
 
-// fitGroups fits every group, a few at a time.
-func fitGroups(ctx context.Context, o *locateOptions, sv *survey, progress io.Writer) error {
+// fitSettings are the inverse settings of the options.
+func (o *locateOptions) fitSettings() *inverse.Settings {
 	set := &inverse.Settings{Count: o.nCount, Robust: o.robust}
 	if o.hasRefZ {
 		z := o.referenceZ
 		set.ReferenceZ = &z
 	}
+	return set
+}
+
+// fitGroups fits every group, a few at a time.
+func fitGroups(ctx context.Context, o *locateOptions, sv *survey, progress io.Writer) error {
+	set := o.fitSettings()
 	workers := o.workers
 	if workers == 0 {
 		workers = runtime.GOMAXPROCS(0)
@@ -499,7 +505,7 @@ func buildDocument(o *locateOptions, sv *survey) (*report.Document, error) {
 	head.Warnings = append(head.Warnings, sv.warnings...)
 	fits := make([]report.Fit, len(sv.groups))
 	for i, g := range sv.groups {
-		fits[i] = report.Fit{Key: g.key, Problem: g.problem(sv.ac, o.noise), Result: g.res, Err: g.err}
+		fits[i] = report.Fit{Key: g.key, Problem: g.problem(sv.ac, o.noise), Result: g.res, Err: g.err, Settings: o.fitSettings()}
 	}
 	doc, err := report.Build(head, fits, &report.BuildSettings{
 		SensorHeight: o.sensorHeight,

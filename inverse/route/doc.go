@@ -13,7 +13,11 @@
 //   - cover shallower than a minimum the caller names;
 //   - stations whose fit is poor or ambiguous;
 //   - dipole-like anomalies: fields better explained by a magnetised
-//     object than by a current.
+//     object than by a current. The caller decides (Station.Dipole, with
+//     the object's position in Station.Object); package report refits the
+//     groups this package reports as current anomalies or poor fits with a
+//     point dipole beside the conductor. A current anomaly at a station
+//     already reported as a poor fit is not reported twice.
 //
 // # Ordering and chainage
 //

@@ -13,15 +13,7 @@ func quality(ps []Placed, set *Settings) []Finding {
 	for i := range ps {
 		p := &ps[i]
 		if p.Dipole {
-			out = append(out, Finding{
-				Kind:     KindDipole,
-				Severity: SeverityInfo,
-				From:     p.Chainage, To: p.Chainage,
-				Position: p.Point,
-				Keys:     []string{p.Key},
-				Message: fmt.Sprintf("the field at %s looks like a magnetised object, not a current; it is left out of the current and cover profile",
-					at(p, len(ps) == 1)),
-			})
+			out = append(out, dipoleFinding(p, len(ps) == 1))
 		}
 		var why []string
 		var vals []Value
@@ -59,4 +51,34 @@ func quality(ps []Placed, set *Settings) []Finding {
 		})
 	}
 	return out
+}
+
+// dipoleFinding reports a station whose field is better explained with a
+// magnetised object, placed at the object when its position is known.
+func dipoleFinding(p *Placed, single bool) Finding {
+	f := Finding{
+		Kind:     KindDipole,
+		Severity: SeverityInfo,
+		From:     p.Chainage, To: p.Chainage,
+		Position: p.Point,
+		Keys:     []string{p.Key},
+		Message: fmt.Sprintf("the field at %s looks like a magnetised object, not a current; it is left out of the current and cover profile",
+			at(p, single)),
+	}
+	o := p.Object
+	if o == nil {
+		return f
+	}
+	f.Position = o.Point
+	f.Message = fmt.Sprintf("a magnetised object (a buried steel or iron item), not a current: a point dipole %.1f m from the conductor at %s, %s m deep, explains the field (information criterion lower by %.0f); it is left out of the current and cover profile",
+		o.Distance, at(p, single), pm(o.Depth, o.DepthSigma), o.Evidence)
+	f.Values = []Value{
+		{Name: "east", Value: o.Point[0], Sigma: o.PointSigma[0], Unit: "m"},
+		{Name: "north", Value: o.Point[1], Sigma: o.PointSigma[1], Unit: "m"},
+		{Name: "depth", Value: o.Depth, Sigma: o.DepthSigma, Unit: "m"},
+		{Name: "distance from conductor", Value: o.Distance, Unit: "m"},
+		{Name: "moment", Value: o.Moment, Sigma: o.MomentSigma, Unit: "A m^2"},
+		{Name: "BIC lower by", Value: o.Evidence},
+	}
+	return f
 }

@@ -628,3 +628,18 @@ func smearSt() []Station {
 	}
 	return st
 }
+
+// A poor fit whose current departs from both neighbours (a traverse over a
+// bend) is reported once, as a poor fit, not also as a current anomaly.
+func TestPoorFitNotAlsoAnomaly(t *testing.T) {
+	st := spur(12, 0, cpCount)
+	st[9].Current += 0.8
+	st[9].Chi2, st[9].DOF = 300, 50
+	r, err := Build(st, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(r.Findings) != 1 || r.Findings[0].Kind != KindPoorFit || r.Findings[0].Keys[0] != key(9) {
+		t.Errorf("findings %+v, want one poor fit at %s", r.Findings, key(9))
+	}
+}

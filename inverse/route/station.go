@@ -43,6 +43,27 @@ type Station struct {
 	// explained by a point dipole (a magnetised object) than by a current.
 	// Such a station is reported and not used for steps or cover.
 	Dipole bool
+	// Object describes the magnetised object when Dipole is true (nil
+	// when the caller has no estimate of it).
+	Object *Object
+}
+
+// Object is a magnetised object found beside the conductor: a point dipole
+// fitted with the line.
+type Object struct {
+	// Point is its position, m ENU, and PointSigma the one-sigma
+	// uncertainty of each coordinate (zero when not resolved).
+	Point, PointSigma [3]float64
+	// Depth is its depth below the depth reference, m.
+	Depth, DepthSigma float64
+	// Moment is the magnitude of its dipole moment, A m^2 (RMS per axis
+	// combined for AC).
+	Moment, MomentSigma float64
+	// Distance is its horizontal distance from the conductor, m.
+	Distance float64
+	// Evidence is how much lower the information criterion (BIC) is with
+	// the dipole than without it.
+	Evidence float64
 }
 
 // usable reports whether the station's current and depth may be used for

@@ -46,7 +46,12 @@ func steps(ps []Placed, set *Settings) []Finding {
 		if spike < 0 {
 			return append(out, stepFindings(u, d, set)...)
 		}
-		out = append(out, anomaly(u[spike-1], u[spike], u[spike+1]))
+		// A station already reported as a poor fit (a bend, a second
+		// conductor the model lacks) is left out without a second finding:
+		// its current departs from the neighbours because its fit is poor.
+		if clean(u[spike], set) {
+			out = append(out, anomaly(u[spike-1], u[spike], u[spike+1]))
+		}
 		u = append(u[:spike:spike], u[spike+1:]...)
 	}
 }

@@ -1,0 +1,503 @@
+package report
+
+import (
+	"fmt"
+	"math"
+	"math/cmplx"
+	"strings"
+
+	"gonum.org/v1/gonum/mat"
+
+	"undercurrent/inverse"
+	"undercurrent/inverse/route"
+)
+
+// Magnetised objects.
+//
+// A buried steel object near a conductor (a drum, a valve, a pile) adds a
+// dipole field that an infinite-line fit absorbs as a biased current, a
+// spurious weak line or a poor fit; along the route it shows as a current
+// anomaly. For each group the route reports as a current anomaly or a poor
+// fit, Build searches for one point dipole beside the group's conductors
+// and marks the group as a magnetised object when
+//
+//   - with the dipole in place of the fit's weak lines (those under
+//     weakShare of the strongest current, which often absorb an object's
+//     field), the Bayesian information criterion is lower than the
+//     original fit's by more than dipoleBIC
+//     (a difference over 10 is "very strong" evidence, Kass & Raftery,
+//     J. Am. Stat. Assoc. 90(430):773-795, 1995), and
+//   - the refitted conductor then agrees with its neighbours: its current
+//     lies within dipoleAgreeK standard deviations of the mean of the
+//     nearest usable groups either side (their half-difference counted as
+//     scatter), and
+//   - the dipole lies off the conductor, farther from it horizontally than
+//     its own depth below the sensors' reference times dipoleOffLine: an
+//     object right on the line cannot be told from a bend or a change of
+//     depth, which a point dipole also mimics.
+//
+// The search holds the conductors' geometry from the original fit and
+// solves the currents, the moment and the background linearly
+// (inverse.FitStrengths) for each trial position of the dipole: a grid
+// over the readings' extent widened by dipoleMargin and down to dipoleDeep
+// below the sensors, then a pattern search down to 1 cm. The position's
+// uncertainty comes from the curvature of chi-square about the best
+// position (C = 2 H^-1); it does not include the uncertainty of the held
+// conductor geometry, so it is a lower bound. Holding the geometry only
+// raises the residual, so the criterion test errs on the side of no object.
+const (
+	weakShare     = 0.05
+	dipoleMargin  = 2.0 // m
+	dipoleDeep    = 3.0 // m
+	dipoleGrid    = 1.0 // m
+	dipoleBIC     = 10
+	dipoleAgreeK  = 3
+	dipoleOffLine = 1.0
+)
+
+// bic is the Bayesian information criterion of a fit as inverse computes
+// it: chi2 + k ln n with a known noise, n ln(RSS/n) + k ln n otherwise (n
+// real readings, k fitted parameters).
+func bic(p *inverse.Problem, r *inverse.Result) float64 {
+	nrhs := 1
+	if p.Phasors != nil {
+		nrhs = 2
+	}
+	n := float64(3 * nrhs * len(p.Points))
+	k := float64(len(r.ParamNames))
+	rss := r.Chi2 * r.Sigma * r.Sigma
+	base := n * math.Log(math.Max(rss, 1e-300)/n)
+	if p.Sigma > 0 {
+		base = rss / (p.Sigma * p.Sigma)
+	}
+	return base + k*math.Log(n)
+}
+
+// paramSigma returns the one-sigma uncertainty of the named parameter of
+// r, or 0 when it is not there.
+func paramSigma(r *inverse.Result, name string) float64 {
+	if r.Covariance == nil {
+		return 0
+	}
+	for i, n := range r.ParamNames {
+		if n == name {
+			return math.Sqrt(math.Max(r.Covariance.At(i, i), 0))
+		}
+	}
+	return 0
+}
+
+// dipoleCandidates returns the keys of the groups r reports as current
+// anomalies or poor fits.
+func dipoleCandidates(r *route.Route) map[string]bool {
+	c := map[string]bool{}
+	for _, f := range r.Findings {
+		switch f.Kind {
+		case route.KindCurrentAnomaly:
+			if len(f.Keys) == 3 {
+				c[f.Keys[1]] = true
+			}
+		case route.KindPoorFit:
+			if len(f.Keys) == 1 {
+				c[f.Keys[0]] = true
+			}
+		}
+	}
+	return c
+}
+
+// neighbours returns the currents and sigmas of the nearest usable
+// stations either side of the station with the given key (in route order).
+func neighbours(r *route.Route, key string, skip map[string]bool) (cur, sig []float64) {
+	at := -1
+	for k := range r.Stations {
+		if r.Stations[k].Key == key {
+			at = k
+			break
+		}
+	}
+	if at < 0 {
+		return nil, nil
+	}
+	for _, dir := range []int{-1, 1} {
+		for k := at + dir; k >= 0 && k < len(r.Stations); k += dir {
+			p := &r.Stations[k]
+			if p.OK && !p.Dipole && !skip[p.Key] {
+				cur = append(cur, math.Abs(p.Current))
+				sig = append(sig, p.CurrentSigma)
+				break
+			}
+		}
+	}
+	return cur, sig
+}
+
+// checkDipoles searches the candidate groups of r for a magnetised object
+// and marks those the rules above accept. It reports whether any group
+// changed.
+func checkDipoles(fits []Fit, r *route.Route) bool {
+	cand := dipoleCandidates(r)
+	changed := false
+	for i := range fits {
+		f := &fits[i]
+		if !cand[f.Key] || f.Dipole || f.Result == nil || len(f.Result.Sources) == 0 {
+			continue
+		}
+		ds := searchDipole(f)
+		if ds == nil || ds.gain <= dipoleBIC {
+			continue
+		}
+		cur, sig := neighbours(r, f.Key, cand)
+		if len(cur) == 0 {
+			continue
+		}
+		var mean, v float64
+		for k := range cur {
+			mean += cur[k] / float64(len(cur))
+			v += sig[k] * sig[k] / float64(len(cur)*len(cur))
+		}
+		if len(cur) == 2 {
+			v += (cur[0] - cur[1]) * (cur[0] - cur[1]) / 4
+		}
+		if math.Abs(math.Abs(ds.current)-mean) > dipoleAgreeK*math.Hypot(ds.currentSigma, math.Sqrt(v)) {
+			continue
+		}
+		if ds.obj.Distance <= dipoleOffLine*ds.obj.Depth {
+			continue
+		}
+		f.Dipole, f.object, f.Result = true, ds.obj, ds.result
+		changed = true
+	}
+	return changed
+}
+
+// dipoleSearch is the outcome of searchDipole.
+type dipoleSearch struct {
+	obj    *route.Object
+	source inverse.SourceEstimate
+	// result is the conductors refitted with the object's field removed,
+	// its predictions and residuals including the object's field.
+	result                *inverse.Result
+	current, currentSigma float64 // the strongest conductor's, with the dipole
+	gain                  float64 // BIC of the original fit minus the dipole model's
+}
+
+// dipoleLocator finds the dipole position that best explains a problem
+// together with conductors of held geometry.
+type dipoleLocator struct {
+	p    *inverse.Problem
+	set  *inverse.Settings
+	srcs []inverse.Source // the lines, then the dipole
+	zTop float64          // shallowest allowed height, m
+}
+
+func (l *dipoleLocator) fit(pos [3]float64) (*inverse.Result, float64) {
+	if pos[2] > l.zTop {
+		return nil, math.Inf(1)
+	}
+	l.srcs[len(l.srcs)-1] = inverse.Dipole{Pos: pos}
+	r, err := inverse.FitStrengths(l.p, l.srcs, l.set)
+	if err != nil {
+		return nil, math.Inf(1)
+	}
+	return r, r.Chi2 * r.Sigma * r.Sigma
+}
+
+// locate searches a grid over the readings' extent (when start is nil)
+// and then polishes by a pattern search: a step along each axis both ways,
+// halved when none improves, down to 1 cm.
+func (l *dipoleLocator) locate(start *[3]float64) ([3]float64, float64) {
+	lo, hi := [3]float64{math.Inf(1), math.Inf(1), math.Inf(1)}, [3]float64{math.Inf(-1), math.Inf(-1), math.Inf(-1)}
+	for _, q := range l.p.Points {
+		for a := range 3 {
+			lo[a], hi[a] = math.Min(lo[a], q[a]), math.Max(hi[a], q[a])
+		}
+	}
+	var best [3]float64
+	bestRSS := math.Inf(1)
+	step := dipoleGrid / 4
+	if start != nil {
+		best = *start
+		_, bestRSS = l.fit(best)
+	} else {
+		step = dipoleGrid / 2
+		for x := lo[0] - dipoleMargin; x <= hi[0]+dipoleMargin+1e-9; x += dipoleGrid {
+			for y := lo[1] - dipoleMargin; y <= hi[1]+dipoleMargin+1e-9; y += dipoleGrid {
+				for z := l.zTop; z >= lo[2]-dipoleDeep; z -= dipoleGrid / 2 {
+					if _, rss := l.fit([3]float64{x, y, z}); rss < bestRSS {
+						best, bestRSS = [3]float64{x, y, z}, rss
+					}
+				}
+			}
+		}
+	}
+	for step >= 0.01 && !math.IsInf(bestRSS, 1) {
+		moved := false
+		for a := range 3 {
+			for _, sgn := range []float64{-1, 1} {
+				q := best
+				q[a] += sgn * step
+				if _, rss := l.fit(q); rss < bestRSS {
+					best, bestRSS, moved = q, rss, true
+				}
+			}
+		}
+		if !moved {
+			step /= 2
+		}
+	}
+	return best, bestRSS
+}
+
+// moment returns the dipole's moment per axis (magnitudes for AC) and
+// sigmas from a FitStrengths result whose dipole strengths start at j.
+func moment(p *inverse.Problem, r *inverse.Result, j int) (m, s [3]float64) {
+	for a := range 3 {
+		if p.Phasors != nil {
+			m[a] = cmplx.Abs(r.StrengthPhasors[j+a])
+		} else {
+			m[a] = r.Strengths[j+a]
+		}
+		s[a] = r.StrengthSigmas[j+a]
+	}
+	return m, s
+}
+
+// without returns p with the field of the dipole at pos, with the moment
+// fitted in r (strengths from j), removed; field holds that field (DC) or
+// phasor field (AC) per reading, nT.
+func without(p *inverse.Problem, r *inverse.Result, j int, pos [3]float64) (*inverse.Problem, [][3]float64, [][3]complex128) {
+	q := &inverse.Problem{Points: p.Points, Sigma: p.Sigma}
+	d := inverse.Dipole{Pos: pos}
+	basis := make([][3]float64, 3)
+	if p.Phasors == nil {
+		field := make([][3]float64, len(p.Points))
+		q.Fields = make([][3]float64, len(p.Points))
+		for i, pt := range p.Points {
+			d.Basis(pt, basis)
+			for ax := range 3 {
+				for c := range 3 {
+					field[i][ax] += r.Strengths[j+c] * basis[c][ax] * 1e9
+				}
+				q.Fields[i][ax] = p.Fields[i][ax] - field[i][ax]
+			}
+		}
+		return q, field, nil
+	}
+	field := make([][3]complex128, len(p.Points))
+	q.Phasors = make([][3]complex128, len(p.Points))
+	for i, pt := range p.Points {
+		d.Basis(pt, basis)
+		for ax := range 3 {
+			for c := range 3 {
+				field[i][ax] += r.StrengthPhasors[j+c] * complex(basis[c][ax]*1e9, 0)
+			}
+			q.Phasors[i][ax] = p.Phasors[i][ax] - field[i][ax]
+		}
+	}
+	return q, nil, field
+}
+
+// searchDipole looks for the point dipole that best explains f's readings
+// together with its fit's conductors (weak lines left out): it places the
+// dipole with the conductors held, refits the conductors (inverse.FitLines)
+// on the readings with the dipole's field removed, and places the dipole
+// again with the refitted conductors held.
+func searchDipole(f *Fit) *dipoleSearch {
+	res, p := f.Result, f.Problem
+	strongest := 0.0
+	for _, s := range res.Sources {
+		if s.Kind != KindDipole {
+			strongest = math.Max(strongest, math.Abs(s.Current))
+		}
+	}
+	var lines []inverse.Source
+	kDrop := 0 // parameters of the lines left out
+	for k := range res.Sources {
+		s := &res.Sources[k]
+		if s.Kind == KindDipole {
+			return nil // already has one
+		}
+		if math.Abs(s.Current) < weakShare*strongest {
+			prefix := fmt.Sprintf("line%d.", k+1)
+			for _, n := range res.ParamNames {
+				if strings.HasPrefix(n, prefix) {
+					kDrop++
+				}
+			}
+			continue
+		}
+		lines = append(lines, inverse.Line{Point: s.Point, Dir: s.Dir})
+	}
+	if len(lines) == 0 {
+		return nil
+	}
+	var fs inverse.Settings
+	if f.Settings != nil {
+		fs = *f.Settings
+	}
+	set := &inverse.Settings{Background: fs.Background, ReferenceZ: fs.ReferenceZ}
+	zmin := math.Inf(1)
+	for _, q := range p.Points {
+		zmin = math.Min(zmin, q[2])
+	}
+	minDepth := fs.MinDepth
+	if minDepth <= 0 {
+		minDepth = 0.02
+	}
+	loc := &dipoleLocator{p: p, set: set, srcs: append(append([]inverse.Source(nil), lines...), nil), zTop: zmin - math.Max(minDepth, 0.1)}
+	pos, _ := loc.locate(nil)
+	r, _ := loc.fit(pos)
+	if r == nil {
+		return nil
+	}
+	// Refit the conductors without the object's field.
+	q, _, _ := without(p, r, len(lines), pos)
+	fs.Count, fs.Dipoles = len(lines), 0
+	lr, err := inverse.FitLines(q, &fs)
+	if err != nil || len(lr.Sources) != len(lines) {
+		return nil
+	}
+	for k, s := range lr.Sources {
+		lines[k] = inverse.Line{Point: s.Point, Dir: s.Dir}
+	}
+	copy(loc.srcs, lines)
+	pos, rss := loc.locate(&pos)
+	if r, _ = loc.fit(pos); r == nil {
+		return nil
+	}
+	nrhs := 1
+	if p.Phasors != nil {
+		nrhs = 2
+	}
+	n := float64(3 * nrhs * len(p.Points))
+	k := float64(len(res.ParamNames)-kDrop) + 3 + float64(3*nrhs)
+	base := n * math.Log(math.Max(rss, 1e-300)/n)
+	s2 := rss / math.Max(n-k, 1)
+	if p.Sigma > 0 {
+		base = rss / (p.Sigma * p.Sigma)
+		s2 = p.Sigma * p.Sigma
+	}
+	ds := &dipoleSearch{gain: bic(p, res) - (base + k*math.Log(n))}
+	sig := curvature(loc, pos, rss, s2)
+	zref := res.ReferenceZ
+	if res.DepthReference != "ReferenceZ" {
+		var m float64
+		for _, q := range p.Points {
+			m += q[2]
+		}
+		zref = m / float64(len(p.Points))
+	}
+	o := &route.Object{Point: pos, PointSigma: sig, Depth: zref - pos[2], DepthSigma: sig[2], Evidence: ds.gain}
+	mom, momSig := moment(p, r, len(lines))
+	var m2, v float64
+	for a := range 3 {
+		m2 += mom[a] * mom[a]
+		v += mom[a] * mom[a] * momSig[a] * momSig[a]
+	}
+	o.Moment = math.Sqrt(m2)
+	if m2 > 0 {
+		o.MomentSigma = math.Sqrt(v / m2) // delta method, axes taken as independent
+	}
+	o.Distance = offLine(&lr.Sources[0], pos)
+	ds.obj = o
+	ds.source = inverse.SourceEstimate{Kind: KindDipole, Point: pos, Moment: mom, MomentSigma: momSig,
+		Depth: o.Depth, DepthSigma: o.DepthSigma,
+		Identifiable: inverse.Identifiable{Depth: sig[2] > 0, Offset: sig[0] > 0},
+		Notes:        []string{"point dipole: a magnetised (ferrous) object, not a current; placed with the conductors' geometry held, so its position sigma is a lower bound"}}
+	ds.current, ds.currentSigma = math.Abs(lr.Sources[0].Current), lr.Sources[0].CurrentSigma
+
+	// The conductors' result, its predictions and residuals with the
+	// object's field added back.
+	_, field, phasors := without(p, r, len(lines), pos)
+	out := *lr
+	var ss float64
+	if field != nil {
+		out.Predicted = make([][3]float64, len(p.Points))
+		out.Residuals = make([][3]float64, len(p.Points))
+		for i := range p.Points {
+			for a := range 3 {
+				out.Predicted[i][a] = lr.Predicted[i][a] + field[i][a]
+				out.Residuals[i][a] = p.Fields[i][a] - out.Predicted[i][a]
+				ss += out.Residuals[i][a] * out.Residuals[i][a]
+			}
+		}
+	} else {
+		out.PredictedPhasors = make([][3]complex128, len(p.Points))
+		out.ResidualPhasors = make([][3]complex128, len(p.Points))
+		for i := range p.Points {
+			for a := range 3 {
+				out.PredictedPhasors[i][a] = lr.PredictedPhasors[i][a] + phasors[i][a]
+				e := p.Phasors[i][a] - out.PredictedPhasors[i][a]
+				out.ResidualPhasors[i][a] = e
+				ss += real(e)*real(e) + imag(e)*imag(e)
+			}
+		}
+	}
+	out.RMS = math.Sqrt(ss / float64(3*len(p.Points)))
+	out.DOF = lr.DOF - 3 - 3*nrhs
+	if out.Sigma > 0 {
+		out.Chi2 = ss / (out.Sigma * out.Sigma)
+	}
+	out.Sources = append(append([]inverse.SourceEstimate(nil), lr.Sources...), ds.source)
+	ds.result = &out
+	return ds
+}
+
+// curvature returns the one-sigma position uncertainty from the curvature
+// of chi-square = RSS/s2 about pos (C = 2 H^-1, central differences over
+// 5 cm); zeros when the curvature is not positive definite.
+func curvature(loc *dipoleLocator, pos [3]float64, rss, s2 float64) [3]float64 {
+	const h = 0.05
+	chi := func(dx [3]float64) float64 {
+		q := pos
+		for a := range 3 {
+			q[a] += dx[a]
+		}
+		_, v := loc.fit(q)
+		return v / s2
+	}
+	c0 := rss / s2
+	H := mat.NewSymDense(3, nil)
+	for a := range 3 {
+		for b := a; b < 3; b++ {
+			var v float64
+			if a == b {
+				var e, m [3]float64
+				e[a], m[a] = h, -h
+				v = (chi(e) - 2*c0 + chi(m)) / (h * h)
+			} else {
+				var pp, pm, mp, mm [3]float64
+				pp[a], pp[b] = h, h
+				pm[a], pm[b] = h, -h
+				mp[a], mp[b] = -h, h
+				mm[a], mm[b] = -h, -h
+				v = (chi(pp) - chi(pm) - chi(mp) + chi(mm)) / (4 * h * h)
+			}
+			H.SetSym(a, b, v)
+		}
+	}
+	var sig [3]float64
+	var ch mat.Cholesky
+	if !ch.Factorize(H) {
+		return sig
+	}
+	var inv mat.SymDense
+	if err := ch.InverseTo(&inv); err != nil {
+		return sig
+	}
+	for a := range 3 {
+		sig[a] = math.Sqrt(math.Max(2*inv.At(a, a), 0))
+	}
+	return sig
+}
+
+// offLine is the horizontal distance of p from the line s.
+func offLine(s *inverse.SourceEstimate, p [3]float64) float64 {
+	d := s.Dir
+	h := math.Hypot(d[0], d[1])
+	if h == 0 {
+		return math.Hypot(p[0]-s.Point[0], p[1]-s.Point[1])
+	}
+	return math.Abs((p[0]-s.Point[0])*d[1]-(p[1]-s.Point[1])*d[0]) / h
+}
