@@ -138,10 +138,13 @@ func printFindings(w io.Writer, doc *report.Document) {
 	fmt.Fprintln(w)
 	if len(doc.Findings) == 0 {
 		fmt.Fprintln(w, "findings: none")
-		return
+	} else {
+		fmt.Fprintf(w, "findings (%d):\n", len(doc.Findings))
 	}
-	fmt.Fprintf(w, "findings (%d):\n", len(doc.Findings))
 	for _, f := range doc.Findings {
 		fmt.Fprintf(w, "  %-8s %s\n", f.Severity, strings.TrimSpace(f.Message))
+	}
+	for _, wn := range doc.Warnings {
+		fmt.Fprintf(w, "note: %s\n", wn)
 	}
 }

@@ -15,6 +15,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"strconv"
 	"strings"
 	"testing"
 	"time"
@@ -36,6 +37,7 @@ const kSigma = 4
 // resultDoc is the part of the result document the tests read, decoded by
 // the field names the issue specifies (so a renamed field fails here).
 type resultDoc struct {
+	Warnings       []string `json:"warnings"`
 	DepthReference struct {
 		Kind string  `json:"kind"`
 		Z    float64 `json:"z_m"`
@@ -406,6 +408,37 @@ func TestE2EACWalk(t *testing.T) {
 			}
 		}
 		checkCrossing(t, g.Key, g.Sources[0], truth[g.Key][0], lagFrac, lag)
+	}
+}
+
+// TestE2EWindowTravel: a window of 0.2 s walked at 1 m/s averages the
+// field over 0.2 m of travel. Over the cable of the AC walk (0.8 m deep,
+// sensor 0.3 m up: 1.1 m away) the field of a line near its peak falls as
+// 1 - x^2/h^2 (Biot-Savart), so the average reads low by L^2/(12 h^2) =
+// 0.28%, over the 0.1% at which locate warns; 0.1 s windows (0.07%) raise
+// no warning.
+func TestE2EWindowTravel(t *testing.T) {
+	sc, doc := locateJSON(t, "ac-walk-2khz.toml", "--freq", "50", "--window", "0.2", "--group-by", "group", "--reference-z", "0")
+	l := sc.Survey.Speed * 0.2
+	h := 0.8 + sc.Sensor.Height
+	want := 100 * l * l / (12 * h * h)
+	var got float64
+	for _, w := range doc.Warnings {
+		if i := strings.Index(w, "% below the field"); i > 0 && strings.HasPrefix(w, "AC windows") {
+			j := strings.LastIndex(w[:i], " ")
+			got, _ = strconv.ParseFloat(w[j+1:i], 64)
+		}
+	}
+	// The warning takes the fitted depth and the walked speed from the
+	// windows' positions: allow 10% of the figure.
+	if math.Abs(got-want) > 0.1*want {
+		t.Errorf("window travel bias %.3g%%, want %.3g%% (warnings %q)", got, want, doc.Warnings)
+	}
+	_, doc = locateJSON(t, "ac-walk-2khz.toml", "--freq", "50", "--window", "0.1", "--group-by", "group", "--reference-z", "0")
+	for _, w := range doc.Warnings {
+		if strings.HasPrefix(w, "AC windows") {
+			t.Errorf("0.1 s windows (0.07%% bias) warned: %s", w)
+		}
 	}
 }
 

@@ -10,6 +10,7 @@ import (
 	"path/filepath"
 	"runtime"
 	"runtime/debug"
+	"sort"
 	"strconv"
 	"strings"
 	"sync"
@@ -239,6 +240,7 @@ type group struct {
 	phasors [][3]complex128 // AC
 	res     *inverse.Result // fit
 	err     error           // fit failure
+	travel  []float64       // AC: distance walked during each window, m
 }
 
 // problem is the group's readings as an inverse problem.
@@ -428,12 +430,96 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 		}
 		sv.doc.Signal = report.Signal{Mode: report.SignalAC, FrequencyHz: res.Freq, WindowS: win}
 	}
-	for _, w := range res.Windows {
+	win := sv.doc.Signal.WindowS
+	for k, w := range res.Windows {
 		g := get(w.Group)
 		g.points = append(g.points, w.Pos)
 		g.phasors = append(g.phasors, w.B)
+		// The walking speed from the neighbouring window of the same
+		// group, times the window's length.
+		for _, j := range []int{k + 1, k - 1} {
+			if j < 0 || j >= len(res.Windows) || res.Windows[j].Group != w.Group {
+				continue
+			}
+			o := res.Windows[j]
+			if dt := math.Abs(o.Time - w.Time); dt > 0 {
+				g.travel = append(g.travel, math.Hypot(o.Pos[0]-w.Pos[0], o.Pos[1]-w.Pos[1])/dt*win)
+			}
+			break
+		}
 	}
 	return nil
+}
+
+// travelBiasLimit is the relative bias of a window's amplitude, from the
+// sensor moving while the window averages the field, above which locate
+// warns.
+const travelBiasLimit = 1e-3
+
+// travelWarning says when AC windows are long enough for the sensor's
+// travel during each to bias the fitted field. Over a line conductor at
+// distance h the field near the peak falls as 1 - x^2/h^2 with the
+// horizontal distance x (Biot-Savart for an infinite line), so a window
+// averaging it over a travel L centred on the peak reads low by
+//
+//	L^2 / (12 h^2)
+//
+// relative. It takes each group's median travel per window and the
+// distance from the sensors' mean height to its strongest conductor, and
+// returns "" when no group exceeds travelBiasLimit.
+func travelWarning(sv *survey) string {
+	worst, worstKey := 0.0, ""
+	var keys []string
+	var travel, dist float64
+	for _, g := range sv.groups {
+		if g.res == nil || len(g.res.Sources) == 0 || len(g.travel) == 0 {
+			continue
+		}
+		var zm float64
+		for _, p := range g.points {
+			zm += p[2]
+		}
+		zm /= float64(len(g.points))
+		h := zm - g.res.Sources[0].Point[2]
+		if h <= 0 {
+			continue
+		}
+		l := medianOf(g.travel)
+		b := l * l / (12 * h * h)
+		if b > travelBiasLimit {
+			keys = append(keys, g.key)
+			if b > worst {
+				worst, worstKey, travel, dist = b, g.key, l, h
+			}
+		}
+	}
+	if worst == 0 {
+		return ""
+	}
+	where := "the fit"
+	if worstKey != "" {
+		where = worstKey
+	}
+	n := len(keys)
+	if n > 8 {
+		keys = append(keys[:8], fmt.Sprintf("and %d more", n-8))
+	}
+	return fmt.Sprintf("AC windows: the sensor moved about %.2f m during each %.3g s window; at %s (%.2f m above the conductor) a window's average of the field is about %.2f%% below the field at its centre near the peak (travel^2/(12 h^2)), which biases the fitted depth and current; %d group(s) over %.1f%% (%s). For a cleaner fit use shorter windows (--window, at least three cycles) or walk more slowly",
+		travel, sv.doc.Signal.WindowS, where, dist, 100*worst, n, 100*travelBiasLimit, strings.Join(keys, ", "))
+}
+
+// medianOf returns the median of v (0 when empty) without modifying it.
+func medianOf(v []float64) float64 {
+	if len(v) == 0 {
+		return 0
+	}
+	s := append([]float64(nil), v...)
+	sort.Float64s(s)
+	n := len(s)
+	if n%2 == 1 {
+		return s[n/2]
+	}
+	return (s[n/2-1] + s[n/2]) / 2
 }
 
 // fitSettings are the inverse settings of the options.
@@ -503,6 +589,9 @@ feed:
 func buildDocument(o *locateOptions, sv *survey) (*report.Document, error) {
 	head := *sv.doc
 	head.Warnings = append(head.Warnings, sv.warnings...)
+	if w := travelWarning(sv); w != "" {
+		head.Warnings = append(head.Warnings, w)
+	}
 	fits := make([]report.Fit, len(sv.groups))
 	for i, g := range sv.groups {
 		fits[i] = report.Fit{Key: g.key, Problem: g.problem(sv.ac, o.noise), Result: g.res, Err: g.err, Settings: o.fitSettings()}
