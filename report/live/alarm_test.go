@@ -21,13 +21,13 @@ func TestAlarms(t *testing.T) {
 		setup func(a *AssetConfig)
 		// currents of two consecutive windows (go, return)
 		first, second []complex128
-		edit          func(w *Window)
+		edit          func(w *window)
 		want          string
 		subject       string
 		quality       string
 	}{
 		{"silent sensor", nil, []complex128{100, -100}, []complex128{100, -100},
-			func(w *Window) { w.Sensors[4] = series{} }, AlarmSilent, "fl-n1", "good"},
+			func(w *window) { w.Sensors[4] = series{} }, AlarmSilent, "fl-n1", "good"},
 		{"step between windows", func(a *AssetConfig) { a.Alarms.Step = 20 }, []complex128{100, -100}, []complex128{150, -150},
 			nil, AlarmStep, "go", "good"},
 		{"over-current", func(a *AssetConfig) { a.Alarms.MaxCurrent = 120 }, []complex128{100, -100}, []complex128{130, -130},

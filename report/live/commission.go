@@ -56,7 +56,7 @@ func (w *assetWorker) setGeometry(conds []ConductorConfig) error {
 // commission holds windows until the commissioning period is covered,
 // fits the geometry to their mean readings, stores it, then publishes
 // every held window with it.
-func (w *assetWorker) commission(win *Window) error {
+func (w *assetWorker) commission(win *window) error {
 	w.pending = append(w.pending, win)
 	w.pendDur += win.End - win.Start
 	if w.pendDur+1e-9 < w.asset.Commission.Seconds() {

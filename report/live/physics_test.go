@@ -16,8 +16,8 @@ import (
 // current cur[c] (DC: real, phase ignored), plus a uniform background bg
 // (nT ENU, DC only) and white noise of noise nT per sample. Readings are
 // rotated into each sensor's frame by the transpose of its orientation.
-func synthWindow(a *AssetConfig, cur []complex128, bg [3]float64, t0 float64, rate float64, n int, noise float64, rng *rand.Rand) *Window {
-	w := &Window{Start: t0, End: t0 + float64(n)/rate, Sensors: make([]series, len(a.Sensors)), Closed: time.Now(), Reason: "complete"}
+func synthWindow(a *AssetConfig, cur []complex128, bg [3]float64, t0 float64, rate float64, n int, noise float64, rng *rand.Rand) *window {
+	w := &window{Start: t0, End: t0 + float64(n)/rate, Sensors: make([]series, len(a.Sensors)), Closed: time.Now(), Reason: "complete"}
 	for si, s := range a.Sensors {
 		// Unit-current fields at the sensor, nT.
 		var per [][3]float64

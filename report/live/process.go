@@ -69,7 +69,7 @@ const minSamples = 4
 
 // reduce calibrates, rotates and averages (DC) or demodulates (AC) each
 // sensor's samples, and raises silent and stuck alarms.
-func (p *processor) reduce(w *Window) *reduced {
+func (p *processor) reduce(w *window) *reduced {
 	a := p.asset
 	r := &reduced{missing: map[string]string{}}
 	var ns []int
@@ -169,7 +169,7 @@ func mean(v []float64) float64 {
 // solve runs the estimator on a reduced window and builds the estimate and
 // its alarms. A failed solve still gives an estimate (quality "failed")
 // so that every window has exactly one.
-func (p *processor) solve(w *Window, r *reduced) (*Estimate, []Alarm) {
+func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 	a := p.asset
 	e := &Estimate{Asset: a.Name, Window: w.Index, Start: w.Start, End: w.End, Mode: a.Mode,
 		Sensors: len(r.used), Samples: r.samples, Closed: w.Reason, Worker: p.worker, Conductors: []ConductorEstimate{}}
@@ -235,7 +235,7 @@ func (p *processor) solve(w *Window, r *reduced) (*Estimate, []Alarm) {
 
 func cmplxAbs(c complex128) float64 { return math.Hypot(real(c), imag(c)) }
 
-func (p *processor) alarm(w *Window, kind, subject string, value, threshold float64, msg string) Alarm {
+func (p *processor) alarm(w *window, kind, subject string, value, threshold float64, msg string) Alarm {
 	return Alarm{Asset: p.asset.Name, Kind: kind, Window: w.Index, Start: w.Start, End: w.End,
 		Subject: subject, Value: value, Threshold: threshold, Message: msg}
 }

@@ -15,9 +15,9 @@ type series struct {
 
 func (s *series) len() int { return len(s.T) }
 
-// Window is one closed window of an asset: per-sensor samples in
+// window is one closed window of an asset: per-sensor samples in
 // [Start, End), indexed like the asset's sensors.
-type Window struct {
+type window struct {
 	Index      int64 // Start = Index * window length
 	Start, End float64
 	Sensors    []series
@@ -139,8 +139,8 @@ func (a *assembler) window(k int64, seq uint64) *openWindow {
 
 // ready closes and returns the windows that can be closed, oldest first.
 // idle > 0 closes everything open once no data arrived for that long.
-func (a *assembler) ready(now time.Time, idle time.Duration) []*Window {
-	var out []*Window
+func (a *assembler) ready(now time.Time, idle time.Duration) []*window {
+	var out []*window
 	maxWater := math.Inf(-1)
 	for _, w := range a.water {
 		maxWater = math.Max(maxWater, w)
@@ -163,7 +163,7 @@ func (a *assembler) ready(now time.Time, idle time.Duration) []*Window {
 		}
 		a.open = a.open[1:]
 		a.done = end
-		out = append(out, &Window{Index: w.idx, Start: float64(w.idx) * a.L, End: end, Sensors: w.sensors, Closed: now, Reason: reason, minSeq: w.minSeq})
+		out = append(out, &window{Index: w.idx, Start: float64(w.idx) * a.L, End: end, Sensors: w.sensors, Closed: now, Reason: reason, minSeq: w.minSeq})
 	}
 	return out
 }

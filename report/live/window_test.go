@@ -26,7 +26,7 @@ func TestAssemblerCompleteWindows(t *testing.T) {
 	const t0 = 1764650000.0
 	a := newAssembler(time.Second, 0, 2)
 	now := time.Unix(0, 0)
-	var closed []*Window
+	var closed []*window
 	seq := uint64(0)
 	for b := 0; b < 12; b++ { // 3 s of data
 		for s := 0; s < 2; s++ {

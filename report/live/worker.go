@@ -40,7 +40,7 @@ type assetWorker struct {
 	proc  *processor
 	ck    checkpoint
 	// commissioning: windows waiting for the geometry.
-	pending []*Window
+	pending []*window
 	pendDur float64
 }
 
@@ -215,7 +215,7 @@ func (w *assetWorker) closeReady(now time.Time, idle time.Duration) error {
 }
 
 // window processes one closed window: commissioning or solve, publish.
-func (w *assetWorker) window(win *Window) error {
+func (w *assetWorker) window(win *window) error {
 	if w.asset.Model == "commission" && w.proc.est != nil {
 		// A recommission request deletes the stored geometry: start again.
 		ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
@@ -232,7 +232,7 @@ func (w *assetWorker) window(win *Window) error {
 	return w.publishWindow(win, nil)
 }
 
-func (w *assetWorker) publishWindow(win *Window, r *reduced) error {
+func (w *assetWorker) publishWindow(win *window, r *reduced) error {
 	met := w.svc.met
 	t0 := time.Now()
 	if r == nil {
