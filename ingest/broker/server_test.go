@@ -112,6 +112,27 @@ func TestRestartKeepsAcknowledged(t *testing.T) {
 	}
 }
 
+// lastMsg polls UC_DATA for the last message on subject: the broker
+// acknowledges an MQTT QoS 1 publication before the stream has stored
+// the NATS message it maps to.
+func lastMsg(ctx context.Context, js jetstream.JetStream, subject string) (*jetstream.RawStreamMsg, error) {
+	st, err := js.Stream(ctx, StreamData)
+	if err != nil {
+		return nil, err
+	}
+	for {
+		m, err := st.GetLastMsgForSubject(ctx, subject)
+		if err == nil {
+			return m, nil
+		}
+		select {
+		case <-ctx.Done():
+			return nil, fmt.Errorf("%s: %w (last error %v)", subject, ctx.Err(), err)
+		case <-time.After(20 * time.Millisecond):
+		}
+	}
+}
+
 // mqttPublish is a minimal MQTT 3.1.1 client (OASIS MQTT Version 3.1.1,
 // sections 3.1 CONNECT, 3.2 CONNACK, 3.3 PUBLISH, 3.4 PUBACK): it connects,
 // publishes one QoS 1 message and waits for the PUBACK.
@@ -191,8 +212,7 @@ func TestMQTTLandsOnDataSubject(t *testing.T) {
 	if err := mqttPublish(s.MQTTAddr(), "", "", "uc/data/kestrel-moor/m2", arrowPayload); err != nil {
 		t.Fatal(err)
 	}
-	st, _ := js.Stream(ctx, StreamData)
-	m, err := st.GetLastMsgForSubject(ctx, "uc.data.kestrel-moor.m2")
+	m, err := lastMsg(ctx, js, "uc.data.kestrel-moor.m2")
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -261,8 +281,7 @@ func TestAuthentication(t *testing.T) {
 	if err := mqttPublish(s.MQTTAddr(), "gateway", "fenwick-gw", "uc/data/fenwick-lane/s1", payload); err != nil {
 		t.Fatalf("gateway MQTT publish: %v", err)
 	}
-	st, _ := js.Stream(ctx, StreamData)
-	if _, err := st.GetLastMsgForSubject(ctx, "uc.data.fenwick-lane.s1"); err != nil {
+	if _, err := lastMsg(ctx, js, "uc.data.fenwick-lane.s1"); err != nil {
 		t.Fatalf("gateway's MQTT message not stored: %v", err)
 	}
 }
