@@ -13,7 +13,7 @@ import (
 
 // MaxProfilePlots is the number of groups whose measured and fitted field
 // the crew report plots.
-const MaxProfilePlots = 3
+const MaxProfilePlots = 4
 
 // WriteHTML writes the crew report: one self-contained HTML page (no
 // scripts, no external files) that opens offline and prints on A4 or
@@ -137,8 +137,11 @@ func depthRefText(d *Document) string {
 
 func valueText(x Value) string {
 	s := x.Name + " " + num(x.Value)
-	if x.Sigma > 0 {
-		s += " ± " + num(x.Sigma)
+	if x.Sigma > 0 && !math.IsInf(x.Sigma, 0) {
+		// The value to the decimals of the sigma's two significant
+		// digits, so that the two read alike ("112.7 ± 0.18").
+		dec := max(0, 1-int(math.Floor(math.Log10(x.Sigma))))
+		s = fmt.Sprintf("%s %.*f ± %.*f", x.Name, dec, x.Value, dec, x.Sigma)
 	}
 	if x.Unit != "" {
 		s += " " + x.Unit
@@ -308,6 +311,9 @@ func (v *view) summarise() {
 		v.Counts = fmt.Sprintf("%s, %s and %s (listed below, most pressing first).",
 			plural(warn, "warning"), plural(caut, "caution"), plural(info, "note"))
 	}
+	if n := len(d.Warnings); n > 0 {
+		v.Counts += fmt.Sprintf(" See also %s about the run at the end of the report.", plural(n, "warning"))
+	}
 	var curSig, curRel, depSig []float64
 	if r := d.Route; r != nil && len(r.Stations) > 1 {
 		var used []Station
@@ -455,9 +461,9 @@ func (v *view) plots() error {
 	return nil
 }
 
-// profileGroups picks up to MaxProfilePlots groups with profiles: groups
-// named in findings first (most pressing first), then the first, middle
-// and last groups.
+// profileGroups picks up to MaxProfilePlots groups with profiles: one for
+// each kind of finding (most pressing first), then the other groups named
+// in findings, then the first, middle and last groups.
 func profileGroups(d *Document) []*Group {
 	byKey := map[string]*Group{}
 	var with []*Group
@@ -476,6 +482,18 @@ func profileGroups(d *Document) []*Group {
 		if g != nil && !seen[g] && len(out) < MaxProfilePlots {
 			seen[g] = true
 			out = append(out, g)
+		}
+	}
+	// One group for each kind of finding first (most pressing first): the
+	// middle of the groups it names, where a run of them shows it best.
+	kinds := map[string]bool{}
+	for _, f := range d.Findings {
+		if kinds[f.Kind] || len(f.Groups) == 0 {
+			continue
+		}
+		if g := byKey[f.Groups[len(f.Groups)/2]]; g != nil && !seen[g] {
+			kinds[f.Kind] = true
+			add(g)
 		}
 	}
 	for _, f := range d.Findings {

@@ -33,9 +33,9 @@ func TestHTML(t *testing.T) {
 				t.Errorf("page lacks the caution %q", c)
 			}
 		}
-		// Plan view, current, depth and three profiles.
-		if n := strings.Count(page, "<svg"); n != 6 {
-			t.Errorf("page has %d <svg> elements, want 6", n)
+		// Plan view, current, depth and MaxProfilePlots profiles.
+		if n := strings.Count(page, "<svg"); n != 3+MaxProfilePlots {
+			t.Errorf("page has %d <svg> elements, want %d", n, 3+MaxProfilePlots)
 		}
 		if strings.Contains(page, "<?xml") {
 			t.Error("page has an XML prolog inside the HTML")

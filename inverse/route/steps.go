@@ -139,11 +139,6 @@ func stepFindings(u []*Placed, d *detection, set *Settings) []Finding {
 		}
 		msg := fmt.Sprintf("current %s by %.3g ± %.2g A between %s (chainage %.1f m) and %s (%.1f m): %s between them",
 			verb, math.Abs(size), sigma, label(a), a.Chainage, label(b), b.Chainage, why)
-		var excess, total float64
-		for i := ia; i < ib; i++ {
-			excess += d.excess[i]
-			total = math.Hypot(total, d.total[i])
-		}
 		f := Finding{
 			Kind:     KindCurrentStep,
 			Severity: SeverityWarning,
@@ -156,7 +151,6 @@ func stepFindings(u []*Placed, d *detection, set *Settings) []Finding {
 				{Name: "current before", Value: pl.before, Sigma: pl.sigmaBefore, Unit: "A"},
 				{Name: "current after", Value: pl.after, Sigma: pl.sigmaAfter, Unit: "A"},
 				{Name: "change between bracketing stations", Value: raw, Sigma: rawSigma, Unit: "A"},
-				{Name: "step beyond trend", Value: excess, Sigma: total, Unit: "A"},
 			},
 		}
 		// The shape of the transition places the step within the bracket
