@@ -1,10 +1,9 @@
 package report
 
 import (
-	"fmt"
 	"math"
 	"math/cmplx"
-	"strings"
+	"sort"
 
 	"gonum.org/v1/gonum/mat"
 
@@ -21,10 +20,8 @@ import (
 // fit, Build searches for one point dipole beside the group's conductors
 // and marks the group as a magnetised object when
 //
-//   - with the dipole in place of the fit's weak lines (those under
-//     weakShare of the strongest current, which often absorb an object's
-//     field), the Bayesian information criterion is lower than the
-//     original fit's by more than dipoleBIC
+//   - with the dipole the Bayesian information criterion is lower than
+//     the original fit's by more than dipoleBIC
 //     (a difference over 10 is "very strong" evidence, Kass & Raftery,
 //     J. Am. Stat. Assoc. 90(430):773-795, 1995), and
 //   - the refitted conductor then agrees with its neighbours: its current
@@ -36,20 +33,28 @@ import (
 //     object right on the line cannot be told from a bend or a change of
 //     depth, which a point dipole also mimics.
 //
-// The search holds the conductors' geometry from the original fit and
-// solves the currents, the moment and the background linearly
-// (inverse.FitStrengths) for each trial position of the dipole: a grid
-// over the readings' extent widened by dipoleMargin and down to dipoleDeep
-// below the sensors, then a pattern search down to 1 cm. The position's
-// uncertainty comes from the curvature of chi-square about the best
-// position (C = 2 H^-1); it does not include the uncertainty of the held
-// conductor geometry, so it is a lower bound. Holding the geometry only
-// raises the residual, so the criterion test errs on the side of no object.
+// The search starts from the fit's conductors, leaving out its weak lines
+// (under weakShare of the strongest current: they often absorb an
+// object's field), holds their geometry and solves the currents, the
+// moment and the background linearly (inverse.FitStrengths) for each trial
+// position of the dipole: a grid over the readings' extent widened by
+// dipoleMargin and down to dipoleDeep below the sensors, the dipoleStarts
+// best grid points then polished by a pattern search down to 1 mm. Then,
+// up to dipoleRounds times, the conductors are refitted (inverse.FitLines,
+// at most as many as before, the count chosen by BIC) on the readings with
+// the object's field removed and the object placed again with them held:
+// block coordinate descent on the joint fit. The criterion counts the
+// refitted conductors' parameters, the dipole's position and its moment.
+// The position's uncertainty comes from the curvature of chi-square about
+// the best position (C = 2 H^-1) with the conductors held, so it leaves out
+// the uncertainty of their geometry and is a lower bound.
 const (
 	weakShare     = 0.05
 	dipoleMargin  = 2.0 // m
 	dipoleDeep    = 3.0 // m
 	dipoleGrid    = 1.0 // m
+	dipoleStarts  = 4
+	dipoleRounds  = 4
 	dipoleBIC     = 10
 	dipoleAgreeK  = 3
 	dipoleOffLine = 1.0
@@ -204,8 +209,7 @@ func (l *dipoleLocator) fit(pos [3]float64) (*inverse.Result, float64) {
 }
 
 // locate searches a grid over the readings' extent (when start is nil)
-// and then polishes by a pattern search: a step along each axis both ways,
-// halved when none improves, down to 1 cm.
+// and polishes the best points found, or polishes start.
 func (l *dipoleLocator) locate(start *[3]float64) ([3]float64, float64) {
 	lo, hi := [3]float64{math.Inf(1), math.Inf(1), math.Inf(1)}, [3]float64{math.Inf(-1), math.Inf(-1), math.Inf(-1)}
 	for _, q := range l.p.Points {
@@ -213,25 +217,58 @@ func (l *dipoleLocator) locate(start *[3]float64) ([3]float64, float64) {
 			lo[a], hi[a] = math.Min(lo[a], q[a]), math.Max(hi[a], q[a])
 		}
 	}
-	var best [3]float64
-	bestRSS := math.Inf(1)
-	step := dipoleGrid / 4
 	if start != nil {
-		best = *start
-		_, bestRSS = l.fit(best)
-	} else {
-		step = dipoleGrid / 2
-		for x := lo[0] - dipoleMargin; x <= hi[0]+dipoleMargin+1e-9; x += dipoleGrid {
-			for y := lo[1] - dipoleMargin; y <= hi[1]+dipoleMargin+1e-9; y += dipoleGrid {
-				for z := l.zTop; z >= lo[2]-dipoleDeep; z -= dipoleGrid / 2 {
-					if _, rss := l.fit([3]float64{x, y, z}); rss < bestRSS {
-						best, bestRSS = [3]float64{x, y, z}, rss
-					}
+		_, rss := l.fit(*start)
+		return l.polish(*start, rss, dipoleGrid/4)
+	}
+	// The grid, then the dipoleStarts best grid points (local minima of
+	// the grid first) polished; a single traverse leaves the position
+	// with shallow, sometimes several, minima.
+	type cell struct {
+		p   [3]float64
+		rss float64
+	}
+	var cells []cell
+	for x := lo[0] - dipoleMargin; x <= hi[0]+dipoleMargin+1e-9; x += dipoleGrid {
+		for y := lo[1] - dipoleMargin; y <= hi[1]+dipoleMargin+1e-9; y += dipoleGrid {
+			for z := l.zTop; z >= lo[2]-dipoleDeep; z -= dipoleGrid / 2 {
+				q := [3]float64{x, y, z}
+				if _, rss := l.fit(q); !math.IsInf(rss, 1) {
+					cells = append(cells, cell{q, rss})
 				}
 			}
 		}
 	}
-	for step >= 0.01 && !math.IsInf(bestRSS, 1) {
+	sort.Slice(cells, func(i, j int) bool { return cells[i].rss < cells[j].rss })
+	var best [3]float64
+	bestRSS := math.Inf(1)
+	var tried [][3]float64
+	for _, c := range cells {
+		if len(tried) == dipoleStarts {
+			break
+		}
+		near := false
+		for _, q := range tried {
+			if math.Abs(q[0]-c.p[0]) <= dipoleGrid+1e-9 && math.Abs(q[1]-c.p[1]) <= dipoleGrid+1e-9 && math.Abs(q[2]-c.p[2]) <= dipoleGrid/2+1e-9 {
+				near = true
+				break
+			}
+		}
+		if near {
+			continue
+		}
+		tried = append(tried, c.p)
+		if p, rss := l.polish(c.p, c.rss, dipoleGrid/2); rss < bestRSS {
+			best, bestRSS = p, rss
+		}
+	}
+	return best, bestRSS
+}
+
+// polish improves a position by a pattern search: a step along each axis
+// both ways, halved when none improves, down to 1 mm.
+func (l *dipoleLocator) polish(best [3]float64, bestRSS, step float64) ([3]float64, float64) {
+	for step >= 0.001 && !math.IsInf(bestRSS, 1) {
 		moved := false
 		for a := range 3 {
 			for _, sgn := range []float64{-1, 1} {
@@ -312,22 +349,14 @@ func searchDipole(f *Fit) *dipoleSearch {
 		}
 	}
 	var lines []inverse.Source
-	kDrop := 0 // parameters of the lines left out
 	for k := range res.Sources {
 		s := &res.Sources[k]
 		if s.Kind == KindDipole {
 			return nil // already has one
 		}
-		if math.Abs(s.Current) < weakShare*strongest {
-			prefix := fmt.Sprintf("line%d.", k+1)
-			for _, n := range res.ParamNames {
-				if strings.HasPrefix(n, prefix) {
-					kDrop++
-				}
-			}
-			continue
+		if math.Abs(s.Current) >= weakShare*strongest {
+			lines = append(lines, inverse.Line{Point: s.Point, Dir: s.Dir})
 		}
-		lines = append(lines, inverse.Line{Point: s.Point, Dir: s.Dir})
 	}
 	if len(lines) == 0 {
 		return nil
@@ -351,27 +380,38 @@ func searchDipole(f *Fit) *dipoleSearch {
 	if r == nil {
 		return nil
 	}
-	// Refit the conductors without the object's field.
-	q, _, _ := without(p, r, len(lines), pos)
-	fs.Count, fs.Dipoles = len(lines), 0
-	lr, err := inverse.FitLines(q, &fs)
-	if err != nil || len(lr.Sources) != len(lines) {
-		return nil
-	}
-	for k, s := range lr.Sources {
-		lines[k] = inverse.Line{Point: s.Point, Dir: s.Dir}
-	}
-	copy(loc.srcs, lines)
-	pos, rss := loc.locate(&pos)
-	if r, _ = loc.fit(pos); r == nil {
-		return nil
+	// Refit the conductors without the object's field and place the
+	// object again with them held, until it moves less than 1 mm
+	// (dipoleRounds at most): block coordinate descent on the joint fit.
+	fs.Count, fs.MaxCount, fs.Dipoles = 0, len(lines), 0
+	var lr *inverse.Result
+	var rss float64
+	for range dipoleRounds {
+		q, _, _ := without(p, r, len(lines), pos)
+		var err error
+		if lr, err = inverse.FitLines(q, &fs); err != nil || len(lr.Sources) == 0 {
+			return nil
+		}
+		lines = lines[:0]
+		for _, s := range lr.Sources {
+			lines = append(lines, inverse.Line{Point: s.Point, Dir: s.Dir})
+		}
+		loc.srcs = append(append([]inverse.Source(nil), lines...), nil)
+		prev := pos
+		pos, rss = loc.locate(&pos)
+		if r, _ = loc.fit(pos); r == nil {
+			return nil
+		}
+		if math.Hypot(math.Hypot(pos[0]-prev[0], pos[1]-prev[1]), pos[2]-prev[2]) < 1e-3 {
+			break
+		}
 	}
 	nrhs := 1
 	if p.Phasors != nil {
 		nrhs = 2
 	}
 	n := float64(3 * nrhs * len(p.Points))
-	k := float64(len(res.ParamNames)-kDrop) + 3 + float64(3*nrhs)
+	k := float64(len(lr.ParamNames)) + 3 + float64(3*nrhs)
 	base := n * math.Log(math.Max(rss, 1e-300)/n)
 	s2 := rss / math.Max(n-k, 1)
 	if p.Sigma > 0 {
@@ -405,7 +445,16 @@ func searchDipole(f *Fit) *dipoleSearch {
 		Depth: o.Depth, DepthSigma: o.DepthSigma,
 		Identifiable: inverse.Identifiable{Depth: sig[2] > 0, Offset: sig[0] > 0},
 		Notes:        []string{"point dipole: a magnetised (ferrous) object, not a current; placed with the conductors' geometry held, so its position sigma is a lower bound"}}
+	// The strongest conductor's current solved jointly with the moment at
+	// the final position; its sigma from the conductors' own fit, which
+	// includes their geometry.
 	ds.current, ds.currentSigma = math.Abs(lr.Sources[0].Current), lr.Sources[0].CurrentSigma
+	if len(r.Strengths) > 0 {
+		ds.current = math.Abs(r.Strengths[0])
+	} else if len(r.StrengthPhasors) > 0 {
+		ds.current = cmplx.Abs(r.StrengthPhasors[0])
+	}
+	ds.currentSigma = math.Max(ds.currentSigma, r.StrengthSigmas[0])
 
 	// The conductors' result, its predictions and residuals with the
 	// object's field added back.
