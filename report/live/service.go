@@ -213,7 +213,7 @@ func (s *Service) assetOrder() []string {
 
 func (s *Service) leaseRound(ctx context.Context, order []string) {
 	st := s.stores
-	rctx, cancel := context.WithTimeout(ctx, s.site.Service.LeaseTTL.Duration/2)
+	rctx, cancel := context.WithTimeout(context.Background(), s.site.Service.LeaseTTL.Duration/2) // not ctx: a stop must not look like a lost lease
 	defer cancel()
 	if _, err := st.Workers.Put(rctx, s.id, []byte(time.Now().UTC().Format(time.RFC3339Nano))); err != nil {
 		s.log.Warn("heartbeat failed", "err", err)
