@@ -3,7 +3,9 @@ package report
 import (
 	"math"
 	"math/cmplx"
+	"runtime"
 	"sort"
+	"sync"
 
 	"gonum.org/v1/gonum/mat"
 
@@ -142,13 +144,27 @@ func neighbours(r *route.Route, key string, skip map[string]bool) (cur, sig []fl
 // changed.
 func checkDipoles(fits []Fit, r *route.Route) bool {
 	cand := dipoleCandidates(r)
-	changed := false
+	// The searches are independent: run them a few at a time.
+	found := make([]*dipoleSearch, len(fits))
+	var wg sync.WaitGroup
+	sem := make(chan struct{}, runtime.GOMAXPROCS(0))
 	for i := range fits {
 		f := &fits[i]
 		if !cand[f.Key] || f.Dipole || f.Result == nil || len(f.Result.Sources) == 0 {
 			continue
 		}
-		ds := searchDipole(f)
+		wg.Add(1)
+		sem <- struct{}{}
+		go func() {
+			defer func() { <-sem; wg.Done() }()
+			found[i] = searchDipole(f)
+		}()
+	}
+	wg.Wait()
+	changed := false
+	for i := range fits {
+		f := &fits[i]
+		ds := found[i]
 		if ds == nil || ds.gain <= dipoleBIC {
 			continue
 		}

@@ -17,15 +17,25 @@ import (
 // Classical Electrodynamics, eq. 5.56), a uniform Earth field and 1 nT of
 // noise. Each traverse is fitted by inverse.FitLines with the count chosen
 // automatically, as locate does.
-func TestBuildFindsMagnetisedObject(t *testing.T) {
+const (
+	drumDepth   = 1.2
+	drumCurrent = 20.0
+	drumNoise   = 1.0 // nT
+)
+
+var (
+	drumPos    = [3]float64{30.4, 3.5, -0.8}
+	drumMoment = [3]float64{0.5, 0.3, -1.05}
+)
+
+func drumFits(t testing.TB) []Fit {
 	const (
-		depth   = 1.2
-		current = 20.0
-		noise   = 1.0 // nT
+		depth   = drumDepth
+		current = drumCurrent
+		noise   = drumNoise
 		spacing = 10.0
 	)
-	obj := [3]float64{30.4, 3.5, -0.8}
-	moment := [3]float64{0.5, 0.3, -1.05}
+	obj, moment := drumPos, drumMoment
 	rng := rand.New(rand.NewPCG(7, 77))
 	earth := [3]float64{-150, 19200, -45100}
 	cable := inverse.Line{Point: [3]float64{0, 0, -depth}, Dir: [3]float64{1, 0, 0}}
@@ -58,7 +68,16 @@ func TestBuildFindsMagnetisedObject(t *testing.T) {
 		}
 		fits = append(fits, Fit{Key: fmt.Sprintf("F%d", i+1), Problem: &prob, Result: res, Settings: set})
 	}
-	d, err := Build(Document{}, fits, &BuildSettings{Noise: noise})
+	return fits
+}
+
+func TestBuildFindsMagnetisedObject(t *testing.T) {
+	const (
+		current = drumCurrent
+		noise   = drumNoise
+	)
+	obj, moment := drumPos, drumMoment
+	d, err := Build(Document{}, drumFits(t), &BuildSettings{Noise: noise})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -105,6 +124,17 @@ func TestBuildFindsMagnetisedObject(t *testing.T) {
 		}
 		if s := g.Sources[0]; math.Abs(math.Abs(s.Current)-current) > 4*s.CurrentSigma {
 			t.Errorf("F4 cable current %.4g ± %.2g A, true %g A", s.Current, s.CurrentSigma, current)
+		}
+	}
+}
+
+// BenchmarkBuildMagnetisedObject builds the document of the seven drum
+// traverses, one of which is searched for a magnetised object.
+func BenchmarkBuildMagnetisedObject(b *testing.B) {
+	fits := drumFits(b)
+	for b.Loop() {
+		if _, err := Build(Document{}, fits, &BuildSettings{Noise: drumNoise}); err != nil {
+			b.Fatal(err)
 		}
 	}
 }

@@ -174,9 +174,15 @@ With --group-by it fits each group (a traverse, a sensor, a time window)
 separately and builds the profile along the route: current, depth and
 position with chainage measured along the fitted route, and findings for a
 crew: steps in current (current leaving the conductor, bracketed between the
-groups that show it), cover shallower than --min-cover, fits that are poor
-or ambiguous. Groups with the same value in several logs are fitted
-together.
+groups that show it and sized from the levels either side), cover shallower
+than --min-cover, fits that are poor or ambiguous, and magnetised objects
+(a buried steel item beside the conductor, found by refitting anomalous
+groups with a point dipole). Groups with the same value in several logs are
+fitted together.
+
+With --freq, each window averages the field along the sensor's path; when
+that biases the field near the peak by more than 0.1% the run warns and
+suggests shorter windows or a slower walk.
 
 With -o DIR it writes results.json (the result document), results.csv,
 route.geojson and report.html (the crew report) into DIR; the directory is
