@@ -110,6 +110,12 @@ func New(cfg Config) (*Service, error) {
 	if s.httpAddr == "" {
 		s.httpAddr = s.site.Service.HTTP
 	}
+	// Fail at start, not at the first window, on a bad calibration file.
+	for i := range s.site.Assets {
+		if _, err := newProcessor(&s.site.Assets[i], s.id); err != nil {
+			return nil, err
+		}
+	}
 	return s, nil
 }
 
