@@ -48,7 +48,7 @@ const (
 	plateauStations = 5
 	maxTransition   = 3
 	outlierZ        = 3.5
-	gridX, gridH    = 41, 19
+	gridX, gridH    = 41, 31
 	sharpZ          = 3.0
 )
 
@@ -123,12 +123,19 @@ func plateau(u []*Placed, set *Settings, ia, ib, lo, hi int) levels {
 	}
 	lim := outlierZ * math.Max(1, 1.4826*medianOf(z))
 	var kept []lvPoint
+	var nb, na int
 	for k, p := range pts {
 		if z[k] <= lim {
 			kept = append(kept, p)
+			if p.x <= xa {
+				nb++
+			}
+			if p.x >= xb {
+				na++
+			}
 		}
 	}
-	if len(kept) < len(pts) && len(kept) >= 2 {
+	if len(kept) < len(pts) && nb > 0 && na > 0 {
 		pts = kept
 		g = search(pts, xa, xb, sp)
 	}
@@ -149,6 +156,14 @@ func plateau(u []*Placed, set *Settings, ia, ib, lo, hi int) levels {
 		lv.slope, lv.slopeSigma = f.c[2], math.Sqrt(f.cov[2][2])
 	}
 	lv.at, lv.atSigma, lv.width = f.xf, g.atSigma, f.h
+	if !finite(lv.step) || !finite(lv.sigma) || !finite(lv.before) || !finite(lv.after) || !finite(lv.atSigma) {
+		// No sound fit of the levels (too few stations): the bracketing
+		// stations themselves.
+		a, b := u[ia], u[ib]
+		lv = levels{before: a.Current, after: b.Current, sigmaBefore: a.CurrentSigma, sigmaAfter: b.CurrentSigma,
+			step: b.Current - a.Current, sigma: math.Hypot(a.CurrentSigma, b.CurrentSigma),
+			at: (xa + xb) / 2, atSigma: (xb - xa) / 2, nBefore: 1, nAfter: 1}
+	}
 	return lv
 }
 
@@ -201,14 +216,18 @@ type gridResult struct {
 }
 
 // search fits the level model at every grid point: x_f across [xa, xb], H
-// on a logarithmic grid from 0.02 to 3 station spacings.
+// zero (a sharp step) and on a logarithmic grid from 0.02 to 3 station
+// spacings.
 func search(pts []lvPoint, xa, xb, sp float64) gridResult {
 	fits := make([]lvFit, 0, gridX*gridH)
 	best, sharp := -1, -1
 	for i := range gridX {
 		xf := xa + (xb-xa)*(float64(i)+0.5)/gridX
 		for j := range gridH {
-			h := 0.02 * sp * math.Pow(150, float64(j)/(gridH-1))
+			h := 0.0 // j = 0: a sharp step
+			if j > 0 {
+				h = 0.02 * sp * math.Pow(150, float64(j-1)/(gridH-2))
+			}
 			f := fitLevels(pts, xf, h)
 			fits = append(fits, f)
 			if best < 0 || f.chi2 < fits[best].chi2 {
@@ -296,6 +315,15 @@ type lvFit struct {
 // frac is the fraction of the upstream level seen at x.
 func (f *lvFit) frac(x float64) float64 {
 	d := f.xf - x
+	if f.h == 0 {
+		switch {
+		case d > 0:
+			return 1
+		case d < 0:
+			return 0
+		}
+		return 0.5
+	}
 	return (1 + d/math.Hypot(d, f.h)) / 2
 }
 

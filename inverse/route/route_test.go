@@ -643,3 +643,23 @@ func TestPoorFitNotAlsoAnomaly(t *testing.T) {
 		t.Errorf("findings %+v, want one poor fit at %s", r.Findings, key(9))
 	}
 }
+
+// With only the two stations that bracket it, a step's levels are the
+// stations themselves: the difference, with the sigma of a difference.
+func TestStepBetweenTwoStations(t *testing.T) {
+	st := []Station{
+		{Key: "A", Point: [3]float64{0, 0, -1}, Dir: [3]float64{1, 0, 0}, Current: 5, CurrentSigma: 0.05, Depth: 1, DepthSigma: 0.01, OK: true},
+		{Key: "B", Point: [3]float64{20, 0, -1}, Dir: [3]float64{1, 0, 0}, Current: 4, CurrentSigma: 0.05, Depth: 1, DepthSigma: 0.01, OK: true},
+	}
+	r, err := Build(st, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(r.Findings) != 1 || r.Findings[0].Kind != KindCurrentStep {
+		t.Fatalf("findings %+v, want one step", r.Findings)
+	}
+	v := r.Findings[0].Values[0]
+	if math.Abs(v.Value+1) > 1e-9 || math.Abs(v.Sigma-math.Sqrt2*0.05) > 1e-9 {
+		t.Errorf("step %v, want -1 ± %.4f A", v, math.Sqrt2*0.05)
+	}
+}

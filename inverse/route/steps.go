@@ -173,8 +173,12 @@ func stepFindings(u []*Placed, d *detection, set *Settings) []Finding {
 				math.Abs(d.dI[big]), d.s[big], label(p), label(q))
 			f.Values = append(f.Values, Value{Name: "largest part", Value: d.dI[big], Sigma: d.s[big], Unit: "A"})
 		}
-		f.Message += fmt.Sprintf("; levels either side %.4g A and %.4g A (%d and %d stations)",
-			pl.before, pl.after, pl.nBefore, pl.nAfter)
+		dec := 2
+		if sigma > 0 {
+			dec = max(0, 1-int(math.Floor(math.Log10(sigma))))
+		}
+		f.Message += fmt.Sprintf("; levels either side %.*f A and %.*f A (%d and %d stations)",
+			dec, pl.before, dec, pl.after, pl.nBefore, pl.nAfter)
 		if resolved {
 			f.Message += fmt.Sprintf("; most likely at chainage %.1f ± %.1f m", pl.at, pl.atSigma)
 		}
