@@ -30,7 +30,7 @@ half-written. Missing values (NaN) are carried over unless --strict.
 
 Examples:
   undercurrent convert harrow-fen-traverse.csv harrow-fen-traverse.parquet
-  undercurrent convert --columns bx=Bx_uT,by=By_uT,bz=Bz_uT logger.csv fenwick-lane.arrow
+  undercurrent convert --column bx=Bx_uT,by=By_uT,bz=Bz_uT logger.csv fenwick-lane.arrow
   undercurrent convert ../shared/data/iaga2002/bou20141101vmin.min base.arrows`,
 		setFlags: func(fs *pflag.FlagSet) {
 			rf.add(fs)

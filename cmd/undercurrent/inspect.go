@@ -19,6 +19,10 @@ import (
 type readFlags struct {
 	columns   []string
 	units     []string
+	// columnsOld and unitsOld hold the plural spellings --columns and
+	// --units, kept as hidden aliases of --column and --unit.
+	columnsOld []string
+	unitsOld   []string
 	delimiter string
 	comment   string
 	header    []string
@@ -27,8 +31,12 @@ type readFlags struct {
 }
 
 func (f *readFlags) add(fs *pflag.FlagSet) {
-	fs.StringSliceVar(&f.columns, "columns", nil, "map canonical columns to the file's names, e.g. bx=Bx_uT,time=t_s (repeatable)")
-	fs.StringSliceVar(&f.units, "units", nil, "units of columns, e.g. bx=uT,time=ms (field nT/uT/mT/G/T, length m/cm/mm/km/ft)")
+	fs.StringSliceVar(&f.columns, "column", nil, "map canonical columns to the file's names: `CANON=NAME`, e.g. bx=Bx_uT,time=t_s (repeatable)")
+	fs.StringSliceVar(&f.units, "unit", nil, "units of columns: `CANON=UNIT`, e.g. bx=uT,time=ms (field nT/uT/mT/G/T, length m/cm/mm/km/ft; repeatable)")
+	fs.StringSliceVar(&f.columnsOld, "columns", nil, "same as --column")
+	fs.StringSliceVar(&f.unitsOld, "units", nil, "same as --unit")
+	_ = fs.MarkHidden("columns")
+	_ = fs.MarkHidden("units")
 	fs.StringVar(&f.delimiter, "delimiter", "", `CSV delimiter: one character, "tab" or "space" (default: guessed)`)
 	fs.StringVar(&f.comment, "comment", "#", "prefix of CSV comment lines")
 	fs.StringSliceVar(&f.header, "header", nil, "column names for a CSV file without a header line")
@@ -38,6 +46,9 @@ func (f *readFlags) add(fs *pflag.FlagSet) {
 
 func (f *readFlags) options(fs *pflag.FlagSet) ([]ingest.Option, error) {
 	var opts []ingest.Option
+	f.columns = append(f.columns, f.columnsOld...)
+	f.units = append(f.units, f.unitsOld...)
+	f.columnsOld, f.unitsOld = nil, nil
 	if len(f.columns) > 0 {
 		opts = append(opts, ingest.WithColumns(f.columns...))
 	}
@@ -112,7 +123,7 @@ rejected. Field values are shown in nT, positions in metres, ENU.
 
 Examples:
   undercurrent inspect harrow-fen-traverse.csv
-  undercurrent inspect --columns bx=Bx_uT,by=By_uT,bz=Bz_uT fenwick-lane.csv
+  undercurrent inspect --column bx=Bx_uT,by=By_uT,bz=Bz_uT fenwick-lane.csv
   undercurrent inspect --json ../shared/data/iaga2002/bou20141101vmin.min`,
 		setFlags: func(fs *pflag.FlagSet) {
 			rf.add(fs)
@@ -171,7 +182,7 @@ func printInspection(w io.Writer, in *ingest.Inspection) {
 			g := t.Largest[0]
 			gaps += fmt.Sprintf(", longest %g s after row %d", g.Length, g.Row)
 		}
-		fmt.Fprintf(tw, "sampling\tmedian step %g s (%.6g Hz); %s\n", t.Interval, t.Rate, gaps)
+		fmt.Fprintf(tw, "sampling\tmedian step %.6g s (%.6g Hz); %s\n", t.Interval, t.Rate, gaps)
 	}
 	if t.Backwards > 0 || t.Repeated > 0 {
 		fmt.Fprintf(tw, "order\t%d steps backwards, %d repeated times\n", t.Backwards, t.Repeated)
