@@ -139,6 +139,9 @@ func plateau(u []*Placed, set *Settings, ia, ib, lo, hi int) levels {
 		pts = kept
 		g = search(pts, xa, xb, sp)
 	}
+	if g.best.h > 0 {
+		g = refine(pts, g, xa, xb, sp)
+	}
 	f := g.best
 	var lv levels
 	for _, p := range pts {
@@ -272,6 +275,63 @@ func search(pts []lvPoint, xa, xb, sp float64) gridResult {
 	// Half the width of the accepted range, widened by half a grid cell.
 	r.atSigma = (hi-lo)/2 + (xb-xa)/(2*gridX)
 	return r
+}
+
+// refine polishes a gradual transition's x_f and H off the grid (pattern
+// search in x_f and ln H, the slope decision held) and widens the sigmas
+// of the step and the location by the delta method: with C = 2 s H^-1 the
+// covariance of (x_f, ln H) from the Hessian H of chi-square (s the Birge
+// scale) and J the gradient of the step with respect to them,
+//
+//	var(step) = var(step | x_f, H) + J C J^T.
+//
+// The larger of that and the grid's profile interval is kept.
+func refine(pts []lvPoint, g gridResult, xa, xb, sp float64) gridResult {
+	slope := g.best.slope
+	at := func(xf, lh float64) lvFit {
+		xf = math.Min(math.Max(xf, xa), xb)
+		return solveLevels(pts, xf, math.Exp(lh), slope)
+	}
+	x, lh := g.best.xf, math.Log(g.best.h)
+	best := at(x, lh)
+	dx, du := (xb-xa)/gridX, math.Log(150)/(gridH-2)
+	for dx > 1e-4*sp {
+		moved := false
+		for _, d := range [][2]float64{{dx, 0}, {-dx, 0}, {0, du}, {0, -du}} {
+			if f := at(x+d[0], lh+d[1]); f.chi2 < best.chi2 {
+				x, lh, best, moved = x+d[0], lh+d[1], f, true
+			}
+		}
+		if !moved {
+			dx, du = dx/2, du/2
+		}
+	}
+	// Central differences, steps small against the uncertainty.
+	hx, hu := 0.02*sp, 0.02
+	if x-hx < xa || x+hx > xb {
+		g.best = best
+		return g
+	}
+	c := func(a, b float64) float64 { return at(x+a, lh+b).chi2 }
+	step := func(a, b float64) float64 { f := at(x+a, lh+b); return f.c[1] - f.c[0] }
+	c0 := best.chi2
+	hxx := (c(hx, 0) - 2*c0 + c(-hx, 0)) / (hx * hx)
+	huu := (c(0, hu) - 2*c0 + c(0, -hu)) / (hu * hu)
+	hxu := (c(hx, hu) - c(hx, -hu) - c(-hx, hu) + c(-hx, -hu)) / (4 * hx * hu)
+	det := hxx*huu - hxu*hxu
+	g.best = best
+	if hxx <= 0 || det <= 0 {
+		return g
+	}
+	s := best.scale
+	cxx, cuu, cxu := 2*s*huu/det, 2*s*hxx/det, -2*s*hxu/det
+	jx := (step(hx, 0) - step(-hx, 0)) / (2 * hx)
+	ju := (step(0, hu) - step(0, -hu)) / (2 * hu)
+	cond := best.cov[0][0] + best.cov[1][1] - 2*best.cov[0][1]
+	v := cond + jx*jx*cxx + ju*ju*cuu + 2*jx*ju*cxu
+	g.spread = math.Max(g.spread, math.Sqrt(math.Max(v, 0)))
+	g.atSigma = math.Max(math.Sqrt(cxx), 0)
+	return g
 }
 
 // lvPoint is one station: chainage, current, sigma and weight.

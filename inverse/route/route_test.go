@@ -663,3 +663,73 @@ func TestStepBetweenTwoStations(t *testing.T) {
 		t.Errorf("step %v, want -1 ± %.4f A", v, math.Sqrt2*0.05)
 	}
 }
+
+// TestStepSigmaCoverage checks that the step's sigma is honest: over many
+// noisy realisations the true step lies within two reported sigmas about
+// 95% of the time (normal coverage; allow down to 88% for 150 runs, about
+// three binomial standard deviations), for a sharp step on the
+// exponential decay and for a step smeared over several stations.
+func TestStepSigmaCoverage(t *testing.T) {
+	if testing.Short() {
+		t.Skip("150 realisations of two routes")
+	}
+	const runs, minCover = 150, 0.88
+	smeared := func(seed uint64) []Station {
+		rng := rand.New(rand.NewPCG(seed, 99))
+		st := make([]Station, 31)
+		for i := range st {
+			x := 5 * float64(i)
+			d := 112.5 - x
+			cur := 33 + 9*(1+d/math.Hypot(d, 3))/2
+			st[i] = Station{Key: key(i), Point: [3]float64{x, 0, -1.2}, Dir: [3]float64{1, 0, 0},
+				Current: cur + 0.05*rng.NormFloat64(), CurrentSigma: 0.05, Depth: 1.2, DepthSigma: 0.01, OK: true}
+		}
+		return st
+	}
+	cases := []struct {
+		name  string
+		route func(seed uint64) []Station
+		want  float64
+		at    float64 // chainage of the step, m
+	}{
+		{"sharp on decay", func(seed uint64) []Station { return spur(seed, 1.0, 17) }, -1.0, 17.5 * cpSpacing},
+		{"smeared", smeared, -9.0, 112.5},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			in, n, other := 0, 0, 0
+			for seed := uint64(100); seed < 100+runs; seed++ {
+				r, err := Build(tc.route(seed), nil)
+				if err != nil {
+					t.Fatal(err)
+				}
+				for _, f := range r.Findings {
+					if f.Kind != KindCurrentStep {
+						continue
+					}
+					if !(f.From < tc.at && tc.at < f.To) {
+						other++ // a false step elsewhere (TestNoFalseSteps bounds their rate)
+						continue
+					}
+					n++
+					if v := f.Values[0]; math.Abs(v.Value-tc.want) <= 2*v.Sigma {
+						in++
+					}
+				}
+			}
+			frac := float64(in) / float64(runs)
+			t.Logf("%d of %d runs within two sigma (%d other steps found)", in, runs, other)
+			if n != runs {
+				t.Errorf("the step was found %d times in %d runs, want once each", n, runs)
+			}
+			// 30 intervals per run at the 1% false-step limit of
+			// TestNoFalseSteps.
+			if other > runs*30/100 {
+				t.Errorf("%d other steps in %d runs", other, runs)
+			}
+			if frac < minCover {
+				t.Errorf("coverage %.2f, want >= %.2f", frac, minCover)
+			}
+		})
+	}
+}

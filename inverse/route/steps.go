@@ -137,8 +137,13 @@ func stepFindings(u []*Placed, d *detection, set *Settings) []Finding {
 		if math.Abs(pl.after) > math.Abs(pl.before) {
 			verb, why = "rises", "current joining the conductor (a bond, a tee or another source)"
 		}
-		msg := fmt.Sprintf("current %s by %.3g ± %.2g A between %s (chainage %.1f m) and %s (%.1f m): %s between them",
-			verb, math.Abs(size), sigma, label(a), a.Chainage, label(b), b.Chainage, why)
+		// Two significant digits of the sigma, the values to match.
+		dec := 2
+		if sigma > 0 {
+			dec = max(0, 1-int(math.Floor(math.Log10(sigma))))
+		}
+		msg := fmt.Sprintf("current %s by %.*f ± %.*f A between %s (chainage %.1f m) and %s (%.1f m): %s between them",
+			verb, dec, math.Abs(size), dec, sigma, label(a), a.Chainage, label(b), b.Chainage, why)
 		f := Finding{
 			Kind:     KindCurrentStep,
 			Severity: SeverityWarning,
@@ -172,10 +177,6 @@ func stepFindings(u []*Placed, d *detection, set *Settings) []Finding {
 			f.Message = fmt.Sprintf("%s; most of the change (%.3g ± %.2g A) between %s and %s", msg,
 				math.Abs(d.dI[big]), d.s[big], label(p), label(q))
 			f.Values = append(f.Values, Value{Name: "largest part", Value: d.dI[big], Sigma: d.s[big], Unit: "A"})
-		}
-		dec := 2
-		if sigma > 0 {
-			dec = max(0, 1-int(math.Floor(math.Log10(sigma))))
 		}
 		f.Message += fmt.Sprintf("; levels either side %.*f A and %.*f A (%d and %d stations)",
 			dec, pl.before, dec, pl.after, pl.nBefore, pl.nAfter)
