@@ -80,8 +80,10 @@
 // x_f and H found by a grid search, a shared scatter tau^2 added to the
 // stations' own variances (DerSimonian & Laird 1986), and the sigma the
 // half-width of the profile interval of I_after - I_before, scaled by the
-// Birge ratio when that exceeds one. When the transition's shape places x_f
-// within the bracket the finding gives that location with its sigma.
+// Birge ratio when that exceeds one; a gradual transition's x_f and H are
+// then polished off the grid and their uncertainty added by the delta
+// method. When the transition's shape places x_f within the bracket the
+// finding gives that location with its sigma.
 //
 // # Cover
 //
