@@ -220,8 +220,9 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int) (Group, route
 	default:
 		g.Problem = ambiguity(res.Criteria)
 	}
-	if f.Dipole && g.Problem == "" {
-		g.Problem = "a magnetised object beside the conductor: fitted with a point dipole"
+	if f.Dipole && g.Problem == "" && f.object == nil {
+		// The caller's verdict, without a fitted object to show for it.
+		g.Problem = "a point dipole explains the readings better than a current"
 	}
 	if f.object != nil {
 		st.Object = f.object

@@ -200,6 +200,13 @@ func (v *view) groupRow(g *Group) groupRow {
 	}
 	if g.Problem != "" {
 		r.Status += ": " + g.Problem
+	} else {
+		for _, s := range g.Sources {
+			if s.Kind == KindDipole {
+				r.Status += ", with a magnetised object beside the conductor (fitted as a point dipole)"
+				break
+			}
+		}
 	}
 	var cur, ph, dep, cov, az []string
 	for _, s := range g.Sources {

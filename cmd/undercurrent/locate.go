@@ -702,7 +702,10 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 				k, ch = "", ""
 			}
 			cur := fmt.Sprintf("%.3g ± %.2g", s.Current, s.CurrentSigma)
-			if s.Phase != nil {
+			switch {
+			case s.Kind == report.KindDipole:
+				cur = "object"
+			case s.Phase != nil:
 				cur = fmt.Sprintf("%.3g∠%.0f° ± %.2g", s.Current, *s.Phase, s.CurrentSigma)
 			}
 			note := ""
