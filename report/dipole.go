@@ -41,7 +41,7 @@ import (
 // moment and the background linearly (inverse.FitStrengths) for each trial
 // position of the dipole: a grid over the readings' extent widened by
 // dipoleMargin and down to dipoleDeep below the sensors, the dipoleStarts
-// best grid points then polished by a pattern search down to 1 mm. Then,
+// best grid points then polished by a pattern search (to 1 cm, the best to 1 mm). Then,
 // up to dipoleRounds times, the conductors are refitted (inverse.FitLines,
 // at most as many as before, the count chosen by BIC) on the readings with
 // the object's field removed and the object placed again with them held:
@@ -235,7 +235,7 @@ func (l *dipoleLocator) locate(start *[3]float64) ([3]float64, float64) {
 	}
 	if start != nil {
 		_, rss := l.fit(*start)
-		return l.polish(*start, rss, dipoleGrid/4)
+		return l.polish(*start, rss, dipoleGrid/4, 0.001)
 	}
 	// The grid, then the dipoleStarts best grid points (local minima of
 	// the grid first) polished; a single traverse leaves the position
@@ -274,17 +274,17 @@ func (l *dipoleLocator) locate(start *[3]float64) ([3]float64, float64) {
 			continue
 		}
 		tried = append(tried, c.p)
-		if p, rss := l.polish(c.p, c.rss, dipoleGrid/2); rss < bestRSS {
+		if p, rss := l.polish(c.p, c.rss, dipoleGrid/2, 0.01); rss < bestRSS {
 			best, bestRSS = p, rss
 		}
 	}
-	return best, bestRSS
+	return l.polish(best, bestRSS, 0.01, 0.001)
 }
 
 // polish improves a position by a pattern search: a step along each axis
-// both ways, halved when none improves, down to 1 mm.
-func (l *dipoleLocator) polish(best [3]float64, bestRSS, step float64) ([3]float64, float64) {
-	for step >= 0.001 && !math.IsInf(bestRSS, 1) {
+// both ways, halved when none improves, down to until.
+func (l *dipoleLocator) polish(best [3]float64, bestRSS, step, until float64) ([3]float64, float64) {
+	for step >= until && !math.IsInf(bestRSS, 1) {
 		moved := false
 		for a := range 3 {
 			for _, sgn := range []float64{-1, 1} {
