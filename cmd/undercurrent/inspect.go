@@ -17,17 +17,17 @@ import (
 // readFlags are the options that say how to read a log; inspect and convert
 // share them.
 type readFlags struct {
-	columns   []string
-	units     []string
+	columns []string
+	units   []string
 	// columnsOld and unitsOld hold the plural spellings --columns and
 	// --units, kept as hidden aliases of --column and --unit.
 	columnsOld []string
 	unitsOld   []string
-	delimiter string
-	comment   string
-	header    []string
-	frame     string
-	origin    string
+	delimiter  string
+	comment    string
+	header     []string
+	frame      string
+	origin     string
 }
 
 func (f *readFlags) add(fs *pflag.FlagSet) {
