@@ -82,7 +82,7 @@ func runDemo(ctx context.Context, out string, stdout, progress io.Writer) error 
 		groupBy:      ingest.ColGroup,
 		sensorHeight: sc.Sensor.Height,
 		minCover:     0.6,
-		coverCode:    "UK 11 kV distribution practice, 600-700 mm (as reproduced publicly)",
+		coverCode:    "UK 11 kV distribution practice, 600-700 mm",
 		title:        "Fenwick Lane 11 kV cable route (demo)",
 		keepNames:    []string{demoLog},
 	}
