@@ -37,47 +37,9 @@ func FitStrengths(p *Problem, sources []Source, set *Settings) (*Result, error) 
 	s := set.orDefault()
 	sv := newSurvey(p)
 	n, nr := len(p.Points), sv.nrhs
-	m := 3 * n
-	ns := 0
-	for _, src := range sources {
-		ns += src.NumStrengths()
-	}
-	nb := s.Background.columns()
-	q := ns + nb
-	if m <= q {
-		return nil, fmt.Errorf("inverse: %d readings (3 axes each) are too few for %d strengths", n, q)
-	}
-	phi := make([]float64, m*q)
-	basis := make([][3]float64, 8)
-	bgc := Background{Origin: sv.centroid, Gradient: s.Background == BackgroundGradient}
-	for i, r := range p.Points {
-		col := 0
-		for si, src := range sources {
-			k := src.NumStrengths()
-			if cap(basis) < k {
-				basis = make([][3]float64, k)
-			}
-			b := basis[:k]
-			src.Basis(r, b)
-			for c := range k {
-				for j := range 3 {
-					v := b[c][j] * nT
-					if !finite(v) {
-						return nil, fmt.Errorf("inverse: reading %d lies on source %d: the field is not finite there", i, si)
-					}
-					phi[(3*i+j)*q+col+c] = v
-				}
-			}
-			col += k
-		}
-		if nb > 0 {
-			bgc.Basis(r, basis[:nb])
-			for c := range nb {
-				for j := range 3 {
-					phi[(3*i+j)*q+ns+c] = basis[c][j]
-				}
-			}
-		}
+	phi, m, q, ns, nb, err := strengthsBasis(p, sources, s, sv)
+	if err != nil {
+		return nil, err
 	}
 	phiCopy := append([]float64(nil), phi...)
 	coef, err := solveLinear(phi, m, q, sv.y, nr)
@@ -245,6 +207,93 @@ func flipCurrent(cur, phase float64, nr int) (float64, float64) {
 		phase -= 360
 	}
 	return cur, phase
+}
+
+// strengthsBasis builds the design matrix of a fixed-geometry fit: m = 3 n rows
+// (readings by axis), q = ns + nb columns (source strengths, then background), in
+// nanotesla per unit strength, row-major.
+func strengthsBasis(p *Problem, sources []Source, s Settings, sv *survey) (phi []float64, m, q, ns, nb int, err error) {
+	n := len(p.Points)
+	m = 3 * n
+	for _, src := range sources {
+		ns += src.NumStrengths()
+	}
+	nb = s.Background.columns()
+	q = ns + nb
+	if m <= q {
+		return nil, 0, 0, 0, 0, fmt.Errorf("inverse: %d readings (3 axes each) are too few for %d strengths", n, q)
+	}
+	phi = make([]float64, m*q)
+	basis := make([][3]float64, 8)
+	bgc := Background{Origin: sv.centroid, Gradient: s.Background == BackgroundGradient}
+	for i, r := range p.Points {
+		col := 0
+		for si, src := range sources {
+			k := src.NumStrengths()
+			if cap(basis) < k {
+				basis = make([][3]float64, k)
+			}
+			b := basis[:k]
+			src.Basis(r, b)
+			for c := range k {
+				for j := range 3 {
+					v := b[c][j] * nT
+					if !finite(v) {
+						return nil, 0, 0, 0, 0, fmt.Errorf("inverse: reading %d lies on source %d: the field is not finite there", i, si)
+					}
+					phi[(3*i+j)*q+col+c] = v
+				}
+			}
+			col += k
+		}
+		if nb > 0 {
+			bgc.Basis(r, basis[:nb])
+			for c := range nb {
+				for j := range 3 {
+					phi[(3*i+j)*q+ns+c] = basis[c][j]
+				}
+			}
+		}
+	}
+	return phi, m, q, ns, nb, nil
+}
+
+// StrengthsRSS returns the residual sum of squares, in nT^2 summed over readings and
+// axes (and over real and imaginary parts for AC), of the fit FitStrengths would make
+// with the same arguments, without its covariance: the cheap objective for a caller
+// that searches over the geometry itself and calls FitStrengths once at the end.
+func StrengthsRSS(p *Problem, sources []Source, set *Settings) (float64, error) {
+	if p == nil {
+		return 0, errors.New("inverse: nil problem")
+	}
+	if err := p.validate(); err != nil {
+		return 0, err
+	}
+	if len(sources) == 0 {
+		return 0, errors.New("inverse: StrengthsRSS needs at least one source")
+	}
+	sv := newSurvey(p)
+	phi, m, q, _, _, err := strengthsBasis(p, sources, set.orDefault(), sv)
+	if err != nil {
+		return 0, err
+	}
+	phiCopy := append([]float64(nil), phi...)
+	nr := sv.nrhs
+	coef, err := solveLinear(phi, m, q, sv.y, nr)
+	if err != nil {
+		return 0, err
+	}
+	var rss float64
+	for row := range m {
+		for k := range nr {
+			v := sv.y[row*nr+k]
+			for j := range q {
+				v -= phiCopy[row*q+j] * coef[j*nr+k]
+			}
+			rss += v * v
+		}
+	}
+	return rss, nil
 }
 
 // solveLinear solves min ||phi c - y|| for nrhs right-hand sides by Householder QR

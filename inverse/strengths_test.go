@@ -104,6 +104,21 @@ func TestFitStrengthsAgainstGonum(t *testing.T) {
 		}
 		within3(t, "strength", res.Strengths[j], truth[j], res.StrengthSigmas[j])
 	}
+	// StrengthsRSS gives the residual sum of squares of the same fit: against gonum's
+	// solution ||A c - y||^2, and against FitStrengths' chi-square times sigma^2.
+	rss, err := StrengthsRSS(&Problem{Points: pts, Fields: fields, Sigma: sigma}, srcs, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var r mat.VecDense
+	r.MulVec(A, &c)
+	r.SubVec(&r, y)
+	if want := mat.Dot(&r, &r); !relClose(rss, want, 1e-9) {
+		t.Errorf("StrengthsRSS = %v, gonum residual %v", rss, want)
+	}
+	if want := res.Chi2 * sigma * sigma; !relClose(rss, want, 1e-12) {
+		t.Errorf("StrengthsRSS = %v, FitStrengths chi2 sigma^2 = %v", rss, want)
+	}
 }
 
 // TestFitStrengthsAC: phasor readings of two lines with different phases give back the

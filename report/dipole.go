@@ -212,6 +212,21 @@ type dipoleLocator struct {
 	zTop float64          // shallowest allowed height, m
 }
 
+// rss is the search's objective: the residual sum of squares with a dipole
+// at pos, +Inf when pos is out of bounds or the fit fails. It skips the
+// covariance that fit computes.
+func (l *dipoleLocator) rss(pos [3]float64) float64 {
+	if pos[2] > l.zTop {
+		return math.Inf(1)
+	}
+	l.srcs[len(l.srcs)-1] = inverse.Dipole{Pos: pos}
+	v, err := inverse.StrengthsRSS(l.p, l.srcs, l.set)
+	if err != nil {
+		return math.Inf(1)
+	}
+	return v
+}
+
 func (l *dipoleLocator) fit(pos [3]float64) (*inverse.Result, float64) {
 	if pos[2] > l.zTop {
 		return nil, math.Inf(1)
@@ -234,7 +249,7 @@ func (l *dipoleLocator) locate(start *[3]float64) ([3]float64, float64) {
 		}
 	}
 	if start != nil {
-		_, rss := l.fit(*start)
+		rss := l.rss(*start)
 		return l.polish(*start, rss, dipoleGrid/4, 0.001)
 	}
 	// The grid, then the dipoleStarts best grid points (local minima of
@@ -249,7 +264,7 @@ func (l *dipoleLocator) locate(start *[3]float64) ([3]float64, float64) {
 		for y := lo[1] - dipoleMargin; y <= hi[1]+dipoleMargin+1e-9; y += dipoleGrid {
 			for z := l.zTop; z >= lo[2]-dipoleDeep; z -= dipoleGrid / 2 {
 				q := [3]float64{x, y, z}
-				if _, rss := l.fit(q); !math.IsInf(rss, 1) {
+				if rss := l.rss(q); !math.IsInf(rss, 1) {
 					cells = append(cells, cell{q, rss})
 				}
 			}
@@ -290,7 +305,7 @@ func (l *dipoleLocator) polish(best [3]float64, bestRSS, step, until float64) ([
 			for _, sgn := range []float64{-1, 1} {
 				q := best
 				q[a] += sgn * step
-				if _, rss := l.fit(q); rss < bestRSS {
+				if rss := l.rss(q); rss < bestRSS {
 					best, bestRSS, moved = q, rss, true
 				}
 			}
@@ -519,7 +534,7 @@ func curvature(loc *dipoleLocator, pos [3]float64, rss, s2 float64) [3]float64 {
 		for a := range 3 {
 			q[a] += dx[a]
 		}
-		_, v := loc.fit(q)
+		v := loc.rss(q)
 		return v / s2
 	}
 	c0 := rss / s2
