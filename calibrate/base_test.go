@@ -2,40 +2,12 @@ package calibrate
 
 import (
 	"math"
-	"os"
-	"path/filepath"
 	"strings"
 	"testing"
+	"undercurrent/ingest/ingesttest"
 
 	"undercurrent/ingest"
 )
-
-// sharedData returns ../shared/data/iaga2002 as seen from the repository
-// root (the directory holding go.mod), skipping the test when absent.
-// The files are INTERMAGNET observatory data distributed by the USGS
-// (public domain); see SOURCE.md there.
-func sharedData(t *testing.T, name string) string {
-	t.Helper()
-	dir, err := os.Getwd()
-	if err != nil {
-		t.Fatal(err)
-	}
-	for {
-		if _, err := os.Stat(filepath.Join(dir, "go.mod")); err == nil {
-			break
-		}
-		parent := filepath.Dir(dir)
-		if parent == dir {
-			t.Skip("repository root not found")
-		}
-		dir = parent
-	}
-	p := filepath.Join(dir, "..", "shared", "data", "iaga2002", name)
-	if _, err := os.Stat(p); err != nil {
-		t.Skipf("real IAGA-2002 data absent: %v", err)
-	}
-	return p
-}
 
 func TestBaseCorrectBoulderSelf(t *testing.T) {
 	// Real Boulder (BOU) 1-minute variation data, 1 and 2 November 2014
@@ -46,7 +18,7 @@ func TestBaseCorrectBoulderSelf(t *testing.T) {
 	// figures are whole nT, so we compare after rounding).
 	for _, name := range []string{"bou20141101vmin.min", "bou20141102vmin.min"} {
 		t.Run(name, func(t *testing.T) {
-			path := sharedData(t, name)
+			path := ingesttest.IAGAFile(t, name)
 			base, err := ingest.ReadSamples(path)
 			if err != nil {
 				t.Fatal(err)
@@ -96,11 +68,11 @@ func TestBaseCorrectBoulderPartial(t *testing.T) {
 	// A rover spanning the evening of 1 November into 2 November, against a
 	// base of 1 November only: corrected where covered, held and warned
 	// beyond.
-	base, err := ingest.ReadSamples(sharedData(t, "bou20141101vmin.min"))
+	base, err := ingest.ReadSamples(ingesttest.IAGAFile(t, "bou20141101vmin.min"))
 	if err != nil {
 		t.Fatal(err)
 	}
-	day2, err := ingest.ReadSamples(sharedData(t, "bou20141102vmin.min"))
+	day2, err := ingest.ReadSamples(ingesttest.IAGAFile(t, "bou20141102vmin.min"))
 	if err != nil {
 		t.Fatal(err)
 	}

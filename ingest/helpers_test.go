@@ -11,31 +11,6 @@ import (
 	"github.com/apache/arrow-go/v18/arrow/memory"
 )
 
-// iagaDir locates the real IAGA-2002 files: ../shared/data/iaga2002 as seen
-// from the directory holding go.mod. The test is skipped when absent.
-func iagaDir(t testing.TB) string {
-	t.Helper()
-	dir, err := os.Getwd()
-	if err != nil {
-		t.Fatal(err)
-	}
-	for {
-		if _, err := os.Stat(filepath.Join(dir, "go.mod")); err == nil {
-			break
-		}
-		parent := filepath.Dir(dir)
-		if parent == dir {
-			t.Skip("go.mod not found")
-		}
-		dir = parent
-	}
-	d := filepath.Join(dir, "..", "shared", "data", "iaga2002")
-	if _, err := os.Stat(d); err != nil {
-		t.Skipf("real IAGA-2002 files not present at %s", d)
-	}
-	return d
-}
-
 // writeFile writes text to name in a fresh temporary directory.
 func writeFile(t testing.TB, name, text string) string {
 	t.Helper()

@@ -5,13 +5,14 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+	"undercurrent/ingest/ingesttest"
 )
 
 // The real files are INTERMAGNET observatory data distributed by the USGS
 // (public domain); see ../shared/data/iaga2002/SOURCE.md.
 
 func TestIAGARealFiles(t *testing.T) {
-	dir := iagaDir(t)
+	dir := ingesttest.IAGADir(t)
 	cases := []struct {
 		file     string
 		rows     int // data lines in the file (wc -l minus header lines)
@@ -69,7 +70,7 @@ func TestIAGARealFiles(t *testing.T) {
 }
 
 func TestIAGAConversions(t *testing.T) {
-	dir := iagaDir(t)
+	dir := ingesttest.IAGADir(t)
 	// First row of bou20141101vmin.min: H 20873.75 nT, D -9.99 arc-min,
 	// Z 47477.30 nT. East = H sin D, north = H cos D, up = -Z.
 	s, err := ReadSamples(filepath.Join(dir, "bou20141101vmin.min"))
@@ -117,7 +118,7 @@ func TestIAGAConversions(t *testing.T) {
 // 520 nT at Boulder) that must stay steady to within the few nT of
 // SOURCE.md over a file.
 func TestIAGAScalarVersusVector(t *testing.T) {
-	dir := iagaDir(t)
+	dir := ingesttest.IAGADir(t)
 	const fewNT = 3.0 // SOURCE.md: "a few nT"
 	s, err := ReadSamples(filepath.Join(dir, "BOU202005adj.min"))
 	if err != nil {

@@ -19,6 +19,7 @@ import (
 	"strings"
 	"testing"
 	"time"
+	"undercurrent/ingest/ingesttest"
 
 	"gonum.org/v1/gonum/mat"
 
@@ -284,10 +285,14 @@ func TestE2ETwoConductors(t *testing.T) {
 
 // TestE2ECurrentStep: the Kestrel Moor pipeline loses 0.30 A at a coating
 // defect at chainage 250 m, between traverses T13 and T14, on top of a
-// slow exponential decay; DC with a base-station correction. The step must
-// be found between exactly those traverses and nowhere else.
+// slow exponential decay; DC with a base-station correction and the
+// sensor's calibration from its spin (kestrel-moor-spin.toml: the survey
+// sensor has a hard-iron offset and soft iron, and without the calibration
+// its currents are biased low by several sigma). The step must be found
+// between exactly those traverses and nowhere else.
 func TestE2ECurrentStep(t *testing.T) {
-	sc, doc := locateJSON(t, "kestrel-moor-step.toml", "--base", "BASE", "--group-by", "group", "--reference-z", "0")
+	cal := spinCalibration(t, "kestrel-moor-spin.toml")
+	sc, doc := locateJSON(t, "kestrel-moor-step.toml", "--calibration", cal, "--base", "BASE", "--group-by", "group", "--reference-z", "0")
 	truth := crossingsByLine(sc)
 	// Each traverse is fitted as an infinite straight line. Two places
 	// break that model in this scenario, and there the current may be off
@@ -635,32 +640,6 @@ func TestE2ECalibration(t *testing.T) {
 	}
 }
 
-// iagaFile locates a real IAGA-2002 file from ../shared/data/iaga2002 as
-// seen from the repository root (the directory holding go.mod), skipping
-// the test when the shared data are absent.
-func iagaFile(t *testing.T, name string) string {
-	t.Helper()
-	dir, err := os.Getwd()
-	if err != nil {
-		t.Fatal(err)
-	}
-	for {
-		if _, err := os.Stat(filepath.Join(dir, "go.mod")); err == nil {
-			break
-		}
-		parent := filepath.Dir(dir)
-		if parent == dir {
-			t.Skip("repository root not found")
-		}
-		dir = parent
-	}
-	path := filepath.Join(dir, "..", "shared", "data", "iaga2002", name)
-	if _, err := os.Stat(path); err != nil {
-		t.Skipf("real IAGA-2002 data not available: %v", err)
-	}
-	return path
-}
-
 // TestE2ERealBaseStation walks the single-line survey slowly on the
 // morning of 2014-11-01 at Boulder, so that the rover sees the real
 // diurnal variation recorded by the Boulder observatory (INTERMAGNET data
@@ -668,7 +647,7 @@ func iagaFile(t *testing.T, name string) string {
 // that file as --base the variation is removed and one fit over all
 // traverses recovers the line; without it the fit is visibly worse.
 func TestE2ERealBaseStation(t *testing.T) {
-	basePath := iagaFile(t, "bou20141101vmin.min")
+	basePath := ingesttest.IAGAFile(t, "bou20141101vmin.min")
 	base, err := ingest.ReadSamples(basePath, ingest.WithAllowMissing(true))
 	if err != nil {
 		t.Fatal(err)

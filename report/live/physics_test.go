@@ -6,6 +6,7 @@ import (
 	"math/rand/v2"
 	"testing"
 	"time"
+	"undercurrent/ingest/ingesttest"
 
 	"undercurrent/inverse"
 )
@@ -54,7 +55,7 @@ func synthWindow(a *AssetConfig, cur []complex128, bg [3]float64, t0 float64, ra
 
 func harrowFen(t *testing.T) *Site {
 	t.Helper()
-	s, err := LoadSite(repoRoot(t) + "/testdata/site/harrow-fen.toml")
+	s, err := LoadSite(ingesttest.RepoRoot(t) + "/testdata/site/harrow-fen.toml")
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -1,34 +1,15 @@
 package live
 
 import (
-	"os"
 	"path/filepath"
 	"strings"
 	"testing"
 	"time"
+	"undercurrent/ingest/ingesttest"
 )
 
-// repoRoot walks up from the package directory to the directory holding go.mod.
-func repoRoot(t testing.TB) string {
-	t.Helper()
-	dir, err := os.Getwd()
-	if err != nil {
-		t.Fatal(err)
-	}
-	for {
-		if _, err := os.Stat(filepath.Join(dir, "go.mod")); err == nil {
-			return dir
-		}
-		parent := filepath.Dir(dir)
-		if parent == dir {
-			t.Fatal("go.mod not found above the package directory")
-		}
-		dir = parent
-	}
-}
-
 func TestExampleSiteLoads(t *testing.T) {
-	s, err := LoadSite(filepath.Join(repoRoot(t), "testdata", "site", "harrow-fen.toml"))
+	s, err := LoadSite(filepath.Join(ingesttest.RepoRoot(t), "testdata", "site", "harrow-fen.toml"))
 	if err != nil {
 		t.Fatal(err)
 	}
