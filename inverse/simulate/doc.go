@@ -30,6 +30,23 @@
 //	reading = M (b + noise) + offset
 //
 // which is the hard- and soft-iron model the calibrate package inverts.
+// With pattern = "spin" the sensor does not walk: it is held at one place
+// and turned through many orientations, the log a calibration by ellipsoid
+// fit needs (the calibrate package's FitEllipsoid). The turning is the
+// sensor spun about its own z axis while that axis tips over from along the
+// Earth field to against it; seen in the sensor's axes the field's
+// direction runs along the spiral
+//
+//	d(s) = (sqrt(1 - c^2) cos(2 pi N s), sqrt(1 - c^2) sin(2 pi N s), c),
+//	c = 1 - 2 s,  s = (t - t0) / T,
+//
+// over the whole sphere, equal times covering equal areas (c falls at a
+// constant rate; Archimedes' hat-box theorem), for N turns in T seconds.
+// The field (Earth, drift and any conductors) is rotated into the sensor's
+// axes by the rotation R(t) that takes d(s) to the Earth field's direction,
+// and the noise and distortion are then added in those axes, so the log is
+// in the sensor frame with no attitude columns, one group "S01".
+//
 // With attitude = "walking" the field is first expressed in the axes of a
 // sensor facing along the survey line and swaying (aerospace Z-Y-X roll,
 // pitch and yaw, logged beside it), so that the calibrate package's tilt
@@ -73,7 +90,7 @@
 //	sway_deg = 5                      #   facing along the line, swaying
 //
 //	[survey]
-//	pattern = "traverses"             # or "grid"
+//	pattern = "traverses"             # or "grid", or "spin" (below)
 //	route = [[0, 0], [80, 10]]        # plan path the traverses cross
 //	count = 31                        # traverses
 //	spacing_m = 5                     # along the route
@@ -90,6 +107,21 @@
 //	current_a = 40                    # or currents_a = [...] per segment
 //	frequency_hz = 50                 # optional: AC, current_a is RMS
 //	phase_deg = 0
+//
+// A spin replaces the traverse keys of [survey] with
+//
+//	[survey]
+//	pattern = "spin"                  # calibration log, sensor frame
+//	at = [-20, 60]                    # where (east, north), m; the sensor
+//	                                  #   is at sensor.height_m
+//	duration_s = 240                  # how long it turns (default 240)
+//	turns = 16                        # turns about its z axis (default 16)
+//
+// and needs no [[conductor]] table; the distortion keys of [sensor]
+// (offset_nt, matrix) are the ones to calibrate away, and the sample rate
+// must be given as sensor.sample_rate_hz. The repository's
+// testdata/scenarios/kestrel-moor-spin.toml is a commented example: the
+// spin of the sensor used for kestrel-moor-step.toml.
 //
 // Each traverse (or grid line) is written with its own value in the group
 // column ("T01", "T02", ..., or "L01", ... for a grid), so the locate command

@@ -103,7 +103,9 @@ type Sensor struct {
 // Survey is where the sensor goes: traverses across a route, or a grid of
 // parallel lines.
 type Survey struct {
-	// Pattern is "traverses" (the default) or "grid".
+	// Pattern is "traverses" (the default), "grid" or "spin" (the sensor
+	// held at At and turned through many orientations for Duration
+	// seconds: a calibration log in the sensor's own axes, see spin.go).
 	Pattern string `toml:"pattern"`
 
 	// Route is the plan path (east, north) the traverses cross. When empty
@@ -127,6 +129,15 @@ type Survey struct {
 	Azimuth float64 `toml:"azimuth_deg"`
 	// LineSpacing is the distance between grid lines, m.
 	LineSpacing float64 `toml:"line_spacing_m"`
+
+	// At is where a spin is done (east, north), m; the sensor is at its
+	// height above the ground.
+	At [2]float64 `toml:"at"`
+	// Duration is how long a spin lasts, s; zero means 240.
+	Duration float64 `toml:"duration_s"`
+	// Turns is how many times the sensor is turned about its own z axis
+	// during a spin while that axis tips over; zero means 16.
+	Turns float64 `toml:"turns"`
 
 	// Speed is the walking speed, m/s; zero means 1 m/s.
 	Speed float64 `toml:"speed_m_s"`
@@ -277,7 +288,10 @@ func (sc *Scenario) Validate() error {
 	if err := sc.validateSensor(); err != nil {
 		return err
 	}
-	if len(sc.Conductors) == 0 {
+	// A spin (a calibration log) is done away from conductors; an unknown
+	// pattern is reported by planLines.
+	walked := sc.Survey.Pattern == "" || sc.Survey.Pattern == "traverses" || sc.Survey.Pattern == "grid"
+	if len(sc.Conductors) == 0 && walked {
 		return fmt.Errorf("simulate: %s: no [[conductor]] tables: a scenario needs at least one source", sc.Source)
 	}
 	for i := range sc.Conductors {
@@ -293,12 +307,11 @@ func (sc *Scenario) Validate() error {
 		return err
 	}
 	sc.lines = lines
-	rate := sc.rate()
 	rows := 0
 	for _, l := range lines {
-		rows += l.samples(sc.speed() / rate)
+		rows += sc.lineSamples(l)
 		if rows > MaxRows {
-			return sc.errAt("survey", 0, "", "the survey would log more than %d readings: lower the sample rate, the line length or the number of lines", MaxRows)
+			return sc.errAt("survey", 0, "", "the survey would log more than %d readings: lower the sample rate, the line length, the number of lines or the spin duration", MaxRows)
 		}
 	}
 	return nil

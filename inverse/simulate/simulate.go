@@ -75,11 +75,10 @@ type span struct {
 // the last reading.
 func (sc *Scenario) spans() ([]span, float64) {
 	speed, rate := sc.speed(), sc.rate()
-	ds := speed / rate
 	out := make([]span, len(sc.lines))
 	t0, last, row := sc.start, math.Inf(-1), 0
 	for i, l := range sc.lines {
-		n := l.samples(ds)
+		n := sc.lineSamples(l)
 		out[i] = span{start: row, n: n, t0: t0}
 		row += n
 		last = t0 + float64(n-1)/rate
@@ -94,6 +93,9 @@ func (sc *Scenario) reading(i int, sp span, k int) (float64, [3]float64) {
 	l := sc.lines[i]
 	rate := sc.rate()
 	d := float64(k) * sc.speed() / rate
+	if sc.Survey.Pattern == "spin" {
+		d = 0
+	}
 	f := 0.0
 	if length := l.Length(); length > 0 {
 		f = d / length
@@ -123,10 +125,9 @@ func eachLine(n int, do func(i int)) {
 
 // Rows is the number of readings Simulate produces.
 func (sc *Scenario) Rows() int {
-	ds := sc.speed() / sc.rate()
 	n := 0
 	for _, l := range sc.lines {
-		n += l.samples(ds)
+		n += sc.lineSamples(l)
 	}
 	return n
 }
@@ -157,6 +158,11 @@ func Simulate(sc *Scenario) (*ingest.Samples, error) {
 		s.Origin = &ingest.Geodetic{Lat: o.Lat, Lon: o.Lon, H: o.Height}
 	}
 	walking := sc.Sensor.Attitude == "walking"
+	spin := sc.Survey.Pattern == "spin"
+	if spin {
+		s.Frame = ingest.FrameSensor
+		s.Meta["pattern"] = "spin"
+	}
 	if walking {
 		s.Frame = ingest.FrameSensor
 		s.Roll, s.Pitch, s.Yaw = make([]float64, n), make([]float64, n), make([]float64, n)
@@ -182,6 +188,9 @@ func Simulate(sc *Scenario) (*ingest.Samples, error) {
 				b = [3]float64{b[0] + w*f[0], b[1] + w*f[1], b[2] + w*f[2]}
 			}
 			j := sp.start + k
+			if spin {
+				b = toSensor(b, sc.spinRotation(t))
+			}
 			if walking {
 				roll, pitch, yaw := sc.attitude(li, t-sp.t0)
 				b = enuToBody(b, roll, pitch, yaw)

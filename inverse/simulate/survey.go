@@ -28,6 +28,14 @@ func (l Line) samples(ds float64) int {
 	return int(math.Floor(l.Length()/ds+1e-9)) + 1
 }
 
+// lineSamples is the number of readings on survey line l.
+func (sc *Scenario) lineSamples(l Line) int {
+	if sc.Survey.Pattern == "spin" {
+		return sc.spinRows()
+	}
+	return l.samples(sc.speed() / sc.rate())
+}
+
 // Lines returns the survey lines in walking order. The scenario must have
 // been checked (Load, Parse or Validate).
 func (sc *Scenario) Lines() []Line { return append([]Line(nil), sc.lines...) }
@@ -48,8 +56,10 @@ func (sc *Scenario) planLines() ([]Line, error) {
 		if lines, err = sc.grid(); err != nil {
 			return nil, err
 		}
+	case "spin":
+		return sc.spinLine()
 	default:
-		return nil, sc.errAt("survey", 0, "pattern", "unknown pattern %q: want \"traverses\" or \"grid\"", sv.Pattern)
+		return nil, sc.errAt("survey", 0, "pattern", "unknown pattern %q: want \"traverses\", \"grid\" or \"spin\"", sv.Pattern)
 	}
 	if zig {
 		for i := 1; i < len(lines); i += 2 {
