@@ -219,3 +219,19 @@ margin_s = 10
 		t.Errorf("spin with sample_spacing_m: %v", err)
 	}
 }
+
+// BenchmarkSimulateSpin: a four-minute spin at 10 Hz, the Kestrel Moor
+// calibration log.
+func BenchmarkSimulateSpin(b *testing.B) {
+	sc, err := Load("../../testdata/scenarios/kestrel-moor-spin.toml")
+	if err != nil {
+		b.Fatal(err)
+	}
+	b.ReportAllocs()
+	for b.Loop() {
+		if _, err := Simulate(sc); err != nil {
+			b.Fatal(err)
+		}
+	}
+	b.ReportMetric(float64(sc.Rows()), "readings/op")
+}
