@@ -139,6 +139,9 @@ func open(path string, cfg *config) (Reader, error) {
 		f.Close()
 		return nil, err
 	}
+	if cfg.progress != nil {
+		r = &progressReader{Reader: r, fn: cfg.progress}
+	}
 	return r, nil
 }
 
@@ -156,6 +159,7 @@ func unwrapPath(err error) error {
 func meanOrigin(path string, cfg *config) (*Geodetic, error) {
 	c := *cfg
 	c.originMode = originFirst
+	c.progress = nil // the second pass reports progress
 	r, err := open(path, &c)
 	if err != nil {
 		return nil, err

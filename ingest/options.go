@@ -76,6 +76,7 @@ type config struct {
 	chunkBytes     int
 	workers        int
 	mem            memory.Allocator
+	progress       func(rows int64)
 	slowOnly       bool  // tests: CSV general path only
 	err            error // first bad option, reported by Open
 }
@@ -231,3 +232,8 @@ func withChunkBytes(n int) Option { return func(c *config) { c.chunkBytes = n } 
 // withSlowPathOnly turns off the CSV single-pass line parser (tests compare
 // it with the general path).
 func withSlowPathOnly() Option { return func(c *config) { c.slowOnly = true } }
+
+// WithProgress calls fn with the number of rows read so far after every
+// record batch a reader hands out, from the goroutine that calls Next. It
+// is meant for progress displays; fn must return quickly.
+func WithProgress(fn func(rows int64)) Option { return func(c *config) { c.progress = fn } }

@@ -53,14 +53,17 @@ Examples:
 			if err != nil {
 				return err
 			}
-			opts = append(opts, ingest.WithAllowMissing(!strict))
+			progress, done := rowProgress(stderr, "converting")
+			opts = append(opts, ingest.WithAllowMissing(!strict), progress)
 			r, err := ingest.Open(in, opts...)
 			if err != nil {
 				return err
 			}
 			defer r.Release()
 			cr := &countingReader{Reader: r, ctx: ctx}
-			if err := ingest.WriteReader(out, cr); err != nil {
+			err = ingest.WriteReader(out, cr)
+			done()
+			if err != nil {
 				return err
 			}
 			if cr.ctx.Err() != nil {

@@ -137,7 +137,9 @@ Examples:
 			if err != nil {
 				return err
 			}
-			in, err := ingest.Inspect(args[0], opts...)
+			progress, done := rowProgress(stderr, "reading")
+			in, err := ingest.Inspect(args[0], append(opts, progress)...)
+			done()
 			if err != nil {
 				return err
 			}
