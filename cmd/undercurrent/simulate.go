@@ -79,8 +79,14 @@ Examples:
 			if err := ingest.WriteSamples(out, s); err != nil {
 				return err
 			}
-			fmt.Fprintf(stdout, "wrote %s: %d readings on %d survey lines over %s\n",
-				out, s.Len(), len(sc.Lines()), span(s.Time))
+			switch n := len(sc.Lines()); {
+			case sc.Survey.Pattern == "spin":
+				fmt.Fprintf(stdout, "wrote %s: %d readings of a sensor turned in place over %s\n", out, s.Len(), span(s.Time))
+			case n == 1:
+				fmt.Fprintf(stdout, "wrote %s: %d readings on 1 survey line over %s\n", out, s.Len(), span(s.Time))
+			default:
+				fmt.Fprintf(stdout, "wrote %s: %d readings on %d survey lines over %s\n", out, s.Len(), n, span(s.Time))
+			}
 			if baseOut != "" {
 				b, err := simulate.SimulateBase(sc)
 				if err != nil {
