@@ -18,13 +18,24 @@ import (
 //
 // with t the log's time column.
 type Window struct {
-	Time  float64       // centre time, s
-	Pos   [3]float64    // mean position, m ENU
-	B     [3]complex128 // complex RMS field per axis, nT
-	Sigma [3]float64    // one-sigma of |B| per axis from the fit residuals, nT
-	Freq  float64       // Hz used (given or estimated)
-	Group string        // group of the samples (windows never straddle groups)
-	N     int           // samples in the window
+	Time float64    // centre time, s
+	Pos  [3]float64 // mean position, m ENU
+	// Travel is the half-travel of the sensor during the window, m ENU: the
+	// window's samples are taken as lying on the straight segment
+	// Pos - Travel .. Pos + Travel, walked at a steady pace. It is the
+	// least-squares slope v of position against time times
+	// T = sqrt(3 var(t)), var(t) the variance of the window's sample times
+	// (T = sqrt(N^2-1)/2 dt for N samples dt apart, about half the window's
+	// duration), chosen so that the mean of any field quadratic along the
+	// path over the samples equals its mean over the segment: the whole-cycle
+	// sine fit returns (to first order) that mean, not the field at Pos.
+	// Zero when the log has no positions or the sensor stood still.
+	Travel [3]float64
+	B      [3]complex128 // complex RMS field per axis, nT
+	Sigma  [3]float64    // one-sigma of |B| per axis from the fit residuals, nT
+	Freq   float64       // Hz used (given or estimated)
+	Group  string        // group of the samples (windows never straddle groups)
+	N      int           // samples in the window
 }
 
 // DemodSettings controls Demodulate. A nil *DemodSettings or a zero field
@@ -429,6 +440,7 @@ func (d *demodulator) window(lo, hi int) error {
 			}
 		}
 	}
+	w.Travel = halfTravel(c, lo, hi, w.Pos)
 	tpl := d.tpl
 	if set.EstimateFreq {
 		f, err := d.estimateWindowFreq(lo, hi)
@@ -681,4 +693,41 @@ func estimateFreq(c *Columns, runs []run, dt, minFreq float64) (float64, error) 
 		return f0, nil
 	}
 	return f.Freq, nil
+}
+
+// halfTravel returns the half-travel of rows [lo, hi) (see Window.Travel):
+// the least-squares slope of each position column against time, times
+// sqrt(3 var(t)). Times are taken relative to their mean, so absolute
+// time stamps lose no digits.
+func halfTravel(c *Columns, lo, hi int, mean [3]float64) [3]float64 {
+	var out [3]float64
+	n := hi - lo
+	if n < 2 {
+		return out
+	}
+	t := c.Time[lo:hi]
+	var tm float64
+	for _, v := range t {
+		tm += v - t[0]
+	}
+	tm = tm/float64(n) + t[0]
+	var stt float64
+	for _, v := range t {
+		stt += (v - tm) * (v - tm)
+	}
+	if !(stt > 0) {
+		return out
+	}
+	half := math.Sqrt(3 * stt / float64(n))
+	for k := 0; k < 3; k++ {
+		if c.Pos[k] == nil {
+			continue
+		}
+		var stx float64
+		for i, v := range c.Pos[k][lo:hi] {
+			stx += (t[i] - tm) * (v - mean[k])
+		}
+		out[k] = stx / stt * half
+	}
+	return out
 }

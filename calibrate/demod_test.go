@@ -362,3 +362,59 @@ func BenchmarkDemodulateEstimateFreq(b *testing.B) {
 	}
 	b.ReportMetric(float64(rows)*float64(b.N)/b.Elapsed().Seconds()/1e6, "Mrows/s")
 }
+
+// TestWindowTravel: the half-travel of a steady walk is the speed times
+// sqrt(N^2-1)/2 dt (from sum k^2 = N(N^2-1)/12 about the mean index, a
+// standard series), and Simpson's rule on Pos -/+ Travel reproduces the
+// mean over the window's samples of a field quadratic along the path, which
+// is what the definition promises.
+func TestWindowTravel(t *testing.T) {
+	const fs, speed = 2000.0, 0.3
+	c := acLog(nil, fs, 4000, 1.7e9, 50, testPhasors, 0)
+	// Add a northward drift that accelerates, so the slope is a fit, not a
+	// difference of end points.
+	for i := range c.Time {
+		s := float64(i) / fs
+		c.Pos[1][i] = 0.1*s + 0.05*s*s
+	}
+	res, err := DemodulateColumns(c, &DemodSettings{Freq: 50, Window: 0.1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(res.Windows) == 0 {
+		t.Fatal("no windows")
+	}
+	for i, w := range res.Windows {
+		n := float64(w.N)
+		want := speed * math.Sqrt(n*n-1) / 2 / fs
+		if math.Abs(w.Travel[0]-want) > 1e-9*want {
+			t.Fatalf("window %d: half-travel east %.12g m, want %.12g", i, w.Travel[0], want)
+		}
+		if w.Travel[2] != 0 {
+			t.Fatalf("window %d: half-travel up %g, want 0", i, w.Travel[2])
+		}
+		// North: least-squares slope of 0.1 s + 0.05 s^2 at the window's
+		// centre time is 0.1 + 0.1 s_c (the quadratic's symmetric part adds
+		// nothing to the slope).
+		sc := w.Time - 1.7e9
+		wantN := (0.1 + 0.1*sc) * math.Sqrt(n*n-1) / 2 / fs
+		if math.Abs(w.Travel[1]-wantN) > 1e-6*wantN {
+			t.Fatalf("window %d: half-travel north %.12g m, want %.12g", i, w.Travel[1], wantN)
+		}
+		// A field quadratic along the (east) path: the mean over the samples
+		// equals Simpson's rule on the segment.
+		x0 := w.Pos[0] - 0.7
+		f := func(x float64) float64 { return 3 + 2*(x-x0) + 5*(x-x0)*(x-x0) }
+		lo := int(math.Round((w.Time-1.7e9)*fs - (n-1)/2))
+		var mean float64
+		for k := lo; k < lo+w.N; k++ {
+			mean += f(c.Pos[0][k])
+		}
+		mean /= n
+		T := w.Travel[0]
+		simp := (f(w.Pos[0]-T) + 4*f(w.Pos[0]) + f(w.Pos[0]+T)) / 6
+		if math.Abs(simp-mean) > 1e-9*math.Abs(mean) {
+			t.Fatalf("window %d: Simpson %.12g, sample mean %.12g", i, simp, mean)
+		}
+	}
+}
