@@ -7,6 +7,7 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
+	"math"
 	"net"
 	"net/http"
 	"strconv"
@@ -16,6 +17,8 @@ import (
 	"github.com/nats-io/nats.go"
 	"github.com/nats-io/nats.go/jetstream"
 	"github.com/prometheus/client_golang/prometheus/promhttp"
+
+	"undercurrent/ingest/broker"
 )
 
 // Handler returns the HTTP API:
@@ -25,12 +28,18 @@ import (
 //	GET  /metrics                          Prometheus metrics (private registry)
 //	GET  /api/v1/assets                    assets, their settings and which worker holds each
 //	GET  /api/v1/assets/{asset}/latest     latest estimate
-//	GET  /api/v1/assets/{asset}/history    estimates with from <= start < to (?from=&to=&limit=&format=csv)
-//	GET  /api/v1/alarms                    alarms, newest last (?asset=&kind=&from=&to=&limit=)
+//	GET  /api/v1/assets/{asset}/history    estimates with from <= start < to, oldest first (?from=&to=&limit=&format=csv)
+//	GET  /api/v1/alarms                    alarms by window start, oldest first (?asset=&kind=&from=&to=&since=&limit=)
 //	POST /api/v1/assets/{asset}/recommission  forget a commissioned geometry (token)
 //
-// Times in queries are seconds on the sensor clock (Unix seconds for live
-// data) or RFC 3339. Read endpoints are open when the API listens on
+// from and to are window starts on the sensor clock (Unix seconds for live
+// data), given as seconds or RFC 3339; since (alarms) is when the broker
+// stored the alarm, in the same forms, for clients that poll for new ones.
+// A listing returns at most limit results (default DefaultQueryLimit, at
+// most MaxQueryLimit): the first ones of the range, so a client pages by
+// asking again from just after the last start it received. Queries are
+// positioned in the stored streams by the broker and read only about as
+// many messages as they return (see History). Read endpoints are open when the API listens on
 // loopback; otherwise, and for every state-changing endpoint, the request
 // needs "Authorization: Bearer TOKEN" with the site's service token.
 func (s *Service) Handler() http.Handler {
@@ -176,11 +185,12 @@ func (s *Service) latest(w http.ResponseWriter, r *http.Request) {
 // query holds the parsed time range and limit of a listing.
 type query struct {
 	from, to float64
+	since    time.Time
 	limit    int
 }
 
 func parseQuery(r *http.Request) (query, error) {
-	q := query{from: -1e300, to: 1e300, limit: 100000}
+	q := query{from: -1e300, to: 1e300, limit: DefaultQueryLimit}
 	for _, k := range []string{"from", "to"} {
 		v := r.URL.Query().Get(k)
 		if v == "" {
@@ -198,10 +208,18 @@ func parseQuery(r *http.Request) (query, error) {
 	}
 	if v := r.URL.Query().Get("limit"); v != "" {
 		n, err := strconv.Atoi(v)
-		if err != nil || n <= 0 {
-			return q, fmt.Errorf("parameter limit: %q is not a positive whole number", v)
+		if err != nil || n <= 0 || n > MaxQueryLimit {
+			return q, fmt.Errorf("parameter limit: %q is not a whole number from 1 to %d", v, MaxQueryLimit)
 		}
 		q.limit = n
+	}
+	if v := r.URL.Query().Get("since"); v != "" {
+		t, err := parseTime(v)
+		if err != nil {
+			return q, fmt.Errorf("parameter since: %q is neither seconds nor an RFC 3339 time", v)
+		}
+		sec, frac := math.Modf(t)
+		q.since = time.Unix(int64(sec), int64(frac*1e9))
 	}
 	return q, nil
 }
@@ -272,7 +290,11 @@ func (s *Service) alarmList(w http.ResponseWriter, r *http.Request) {
 		httpError(w, http.StatusNotFound, fmt.Sprintf("no asset %q in the site file", asset))
 		return
 	}
-	list, err := s.Alarms(r.Context(), asset, kind, q.from, q.to, q.limit)
+	if kind != "" && broker.ValidToken(kind) != nil {
+		httpError(w, http.StatusBadRequest, fmt.Sprintf("parameter kind: %q is not an alarm kind", kind))
+		return
+	}
+	list, err := s.Alarms(r.Context(), asset, kind, q.from, q.to, q.since, q.limit)
 	if err != nil {
 		httpError(w, http.StatusBadGateway, err.Error())
 		return

@@ -18,6 +18,7 @@ type metrics struct {
 	latency     *prometheus.HistogramVec // asset
 	pending     *prometheus.GaugeVec     // asset
 	dataLag     *prometheus.GaugeVec     // asset
+	queryReads  *prometheus.CounterVec   // query
 	leases      prometheus.Gauge
 	takeovers   prometheus.Counter
 }
@@ -46,11 +47,13 @@ func newMetrics() *metrics {
 		Help: "Sensor messages stored but not yet read, by asset (consumer lag)."}, []string{"asset"})
 	m.dataLag = prometheus.NewGaugeVec(prometheus.GaugeOpts{Name: "uc_data_lag_seconds",
 		Help: "Wall-clock time minus the end of the last published window, by asset (live data with Unix times)."}, []string{"asset"})
+	m.queryReads = prometheus.NewCounterVec(prometheus.CounterOpts{Name: "uc_query_messages_read_total",
+		Help: "Stored messages read to answer API queries (positioning probes and messages scanned), by query (history, alarms)."}, []string{"query"})
 	m.leases = prometheus.NewGauge(prometheus.GaugeOpts{Name: "uc_assets_held", Help: "Assets this worker holds."})
 	m.takeovers = prometheus.NewCounter(prometheus.CounterOpts{Name: "uc_asset_acquisitions_total",
 		Help: "Times this worker acquired an asset's lease."})
 	m.reg.MustRegister(m.messages, m.deadLetters, m.samples, m.windows, m.estimates, m.alarms,
-		m.stage, m.latency, m.pending, m.dataLag, m.leases, m.takeovers,
+		m.stage, m.latency, m.pending, m.dataLag, m.queryReads, m.leases, m.takeovers,
 		collectors.NewGoCollector(), collectors.NewProcessCollector(collectors.ProcessCollectorOpts{}))
 	return m
 }
