@@ -17,8 +17,9 @@
 // gateway knows the broker stored it.
 //
 // Dead-letter reasons: malformed, oversized, out-of-order, late,
-// unknown-sensor. (Data for an asset that no site file lists is never read;
-// it stays in UC_DATA until the retention time.) The broker itself refuses
+// unknown-sensor, unknown-asset (data for an asset the site file does not
+// list, found by a periodic sweep of the stored subjects and read through a
+// durable consumer per unknown asset shared by the workers). The broker itself refuses
 // messages above its maximum payload (8 MiB for the embedded server) at
 // publication. Each dead letter carries the headers
 // Uc-Reason, Uc-Error (the full message, naming row and column), Uc-Subject

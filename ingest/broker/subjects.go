@@ -43,6 +43,7 @@ const (
 	ReasonOutOfOrder    = "out-of-order"   // samples at or before ones already seen for that sensor
 	ReasonLate          = "late"           // samples for a window that was already published
 	ReasonUnknownSensor = "unknown-sensor" // sensor not listed for the asset in the site file
+	ReasonUnknownAsset  = "unknown-asset"  // asset not listed in the site file
 )
 
 // DataSubject returns uc.data.<asset>.<sensor>. It panics if a name is not a

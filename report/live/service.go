@@ -178,7 +178,12 @@ func (s *Service) Run(ctx context.Context) error {
 		s.log.Info("http api listening", "addr", ln.Addr().String())
 	}
 	close(s.ready)
+	uctx, ucancel := context.WithCancel(ctx)
+	swept := make(chan struct{})
+	go func() { defer close(swept); s.unknownLoop(uctx, s.site.Service.LeaseTTL.Duration) }()
 	err = s.leaseLoop(ctx)
+	ucancel()
+	<-swept
 	if srv != nil {
 		sd, cancel := context.WithTimeout(context.Background(), 5*time.Second)
 		srv.Shutdown(sd)

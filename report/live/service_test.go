@@ -550,3 +550,87 @@ func TestWorkSharing(t *testing.T) {
 	a.stop(t)
 	b.stop(t)
 }
+
+// Data for an asset that the site file does not list is dead-lettered as
+// unknown-asset with the reason, once each even with two workers
+// sweeping, is counted, and does not disturb the listed asset.
+func TestUnknownAssetDeadLettered(t *testing.T) {
+	if testing.Short() {
+		t.Skip("runs a broker and the service")
+	}
+	h := newHarness(t)
+	site := testSite(t, testSiteText)
+	r1 := h.start(site, "w1")
+	r2 := h.start(site, "w2")
+	// Before and after the workers have swept once: both are found.
+	ctx := context.Background()
+	pubUnknown := func(i int) {
+		t.Helper()
+		subj := fmt.Sprintf("uc.data.kestrel-moor-spur.p%d", i%2)
+		if _, err := h.js.Publish(ctx, subj, []byte(fmt.Sprintf(`{"time":[%d],"bx":[1],"by":[1],"bz":[1]}`, i))); err != nil {
+			t.Fatal(err)
+		}
+	}
+	for i := 0; i < 3; i++ {
+		pubUnknown(i)
+	}
+	h.publish(0, 1)
+	waitFor(t, 30*time.Second, "2 estimates", func() bool { return len(h.estimates()) >= 2 })
+	for i := 3; i < 5; i++ {
+		pubUnknown(i)
+	}
+	h.publish(1, 1)
+	dlq, err := h.js.Stream(ctx, broker.StreamDeadLetter)
+	if err != nil {
+		t.Fatal(err)
+	}
+	count := func() uint64 {
+		info, err := dlq.Info(ctx, jetstream.WithSubjectFilter(broker.DeadLetterSubject(broker.ReasonUnknownAsset)))
+		if err != nil {
+			t.Fatal(err)
+		}
+		return info.State.Subjects[broker.DeadLetterSubject(broker.ReasonUnknownAsset)]
+	}
+	waitFor(t, 30*time.Second, "5 unknown-asset dead letters", func() bool { return count() >= 5 })
+	waitFor(t, 30*time.Second, "4 estimates", func() bool { return len(h.estimates()) >= 4 })
+	checkExactlyOnce(t, h.estimates(), 4)
+	m, err := dlq.GetLastMsgForSubject(ctx, broker.DeadLetterSubject(broker.ReasonUnknownAsset))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got := m.Header.Get(broker.HeaderError); !strings.Contains(got, `asset "kestrel-moor-spur" is not in the site file`) {
+		t.Errorf("dead letter error %q", got)
+	}
+	if m.Header.Get(broker.HeaderSubject) != "uc.data.kestrel-moor-spur.p0" || m.Header.Get(broker.HeaderSequence) == "" {
+		t.Errorf("dead letter headers: %v", m.Header)
+	}
+	if string(m.Data) != `{"time":[4],"bx":[1],"by":[1],"bz":[1]}` {
+		t.Errorf("dead letter payload %q, want the message unchanged", m.Data)
+	}
+	// Counted by whichever worker dead-lettered each: 5 in all. Poll: the
+	// counter moves just after the dead letter is stored.
+	metric := func(r *running) float64 {
+		resp, err := http.Get("http://" + r.svc.HTTPAddr() + "/metrics")
+		if err != nil {
+			t.Fatal(err)
+		}
+		defer resp.Body.Close()
+		body, _ := io.ReadAll(resp.Body)
+		for _, line := range strings.Split(string(body), "\n") {
+			if v, ok := strings.CutPrefix(line, `uc_dead_letters_total{reason="unknown-asset"} `); ok {
+				f, _ := strconv.ParseFloat(v, 64)
+				return f
+			}
+		}
+		return 0
+	}
+	waitFor(t, 10*time.Second, "5 unknown-asset dead letters counted", func() bool { return metric(r1)+metric(r2) == 5 })
+	// Once each: a few more sweeps add nothing.
+	sweeps := time.Now()
+	waitFor(t, 10*time.Second, "three more sweeps", func() bool { return time.Since(sweeps) > 3*site.Service.LeaseTTL.Duration })
+	if n := count(); n != 5 {
+		t.Errorf("%d unknown-asset dead letters, want 5", n)
+	}
+	r1.stop(t)
+	r2.stop(t)
+}
