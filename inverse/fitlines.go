@@ -250,6 +250,7 @@ func (f *fitter) bestOf(starts []start, quick bool) (*candidate, error) {
 	var r []float64
 	for _, st := range starts {
 		sp := newSeparable(f.sv.pts, f.sv.y, f.sv.nrhs, f.set.Background, f.sv.centroid, st.lines, st.dips)
+		sp.ptsLo, sp.ptsHi = f.sv.lo, f.sv.hi
 		sp.lmWork = f.lmWork
 		if prev != nil {
 			sp.a, sp.qty, sp.coef, sp.tau, sp.bbar = prev.a, prev.qty, prev.coef, prev.tau, prev.bbar

@@ -226,6 +226,18 @@ func strengthsBasis(p *Problem, sources []Source, s Settings, sv *survey) (phi [
 	phi = make([]float64, m*q)
 	basis := make([][3]float64, 8)
 	bgc := Background{Origin: sv.centroid, Gradient: s.Background == BackgroundGradient}
+	// Point readings take the basis at the point; path-averaged readings (Problem.Travel)
+	// its three-point Gauss-Legendre mean over the path (pathMean). The background is
+	// linear in position, so its centre value is its path average.
+	nodes := []struct {
+		off float64
+		w   float64
+	}{{0, 1}}
+	wsum := 1.0
+	if p.Travel != nil {
+		nodes = append(nodes[:1:1], struct{ off, w float64 }{-gaussNode, 5}, struct{ off, w float64 }{gaussNode, 5})
+		nodes[0].w, wsum = 8, 18
+	}
 	for i, r := range p.Points {
 		col := 0
 		for si, src := range sources {
@@ -234,12 +246,29 @@ func strengthsBasis(p *Problem, sources []Source, s Settings, sv *survey) (phi [
 				basis = make([][3]float64, k)
 			}
 			b := basis[:k]
-			src.Basis(r, b)
+			var acc [8][3]float64
+			sum := acc[:0]
+			if k > len(acc) {
+				sum = make([][3]float64, 0, k)
+			}
+			sum = sum[:k]
+			for _, nd := range nodes {
+				at := r
+				if nd.off != 0 {
+					at = add(r, scale(p.Travel[i], nd.off))
+				}
+				src.Basis(at, b)
+				for c := range k {
+					for j := range 3 {
+						sum[c][j] += nd.w * b[c][j]
+					}
+				}
+			}
 			for c := range k {
 				for j := range 3 {
-					v := b[c][j] * nT
+					v := sum[c][j] / wsum * nT
 					if !finite(v) {
-						return nil, 0, 0, 0, 0, fmt.Errorf("inverse: reading %d lies on source %d: the field is not finite there", i, si)
+						return nil, 0, 0, 0, 0, fmt.Errorf("inverse: reading %d lies on source %d (or its path): the field is not finite there", i, si)
 					}
 					phi[(3*i+j)*q+col+c] = v
 				}

@@ -8,7 +8,9 @@ import (
 // survey holds what the seeding and reporting need to know about the readings.
 type survey struct {
 	pts      [][3]float64
-	y        []float64 // 3 rows per point x nrhs, row-major (nT)
+	trav     [][3]float64 // half-travel per reading (Problem.Travel), nil for point readings
+	lo, hi   [][3]float64 // outer quadrature nodes of each reading's path, pts -/+ gaussNode trav; nil for point readings
+	y        []float64    // 3 rows per point x nrhs, row-major (nT)
 	nrhs     int
 	centroid [3]float64 // mean position
 	anchor   [3]float64 // centroid at height 0: anchor of the lines' crossing planes
@@ -35,7 +37,7 @@ const singleTraverseRatio = 0.1
 
 func newSurvey(p *Problem) *survey {
 	n := len(p.Points)
-	sv := &survey{pts: p.Points, nrhs: 1, zmin: math.Inf(1)}
+	sv := &survey{pts: p.Points, trav: p.Travel, nrhs: 1, zmin: math.Inf(1)}
 	if p.isAC() {
 		sv.nrhs = 2
 	}
@@ -54,6 +56,15 @@ func newSurvey(p *Problem) *survey {
 	for _, r := range p.Points {
 		sv.centroid = add(sv.centroid, r)
 		sv.zmin = math.Min(sv.zmin, r[2])
+	}
+	if p.Travel != nil {
+		sv.lo, sv.hi = make([][3]float64, n), make([][3]float64, n)
+		for i, t := range p.Travel {
+			g := scale(t, gaussNode)
+			sv.lo[i], sv.hi[i] = sub(p.Points[i], g), add(p.Points[i], g)
+			// The lowest point of the path bounds the conductors' height.
+			sv.zmin = math.Min(sv.zmin, p.Points[i][2]-math.Abs(t[2]))
+		}
 	}
 	sv.centroid = scale(sv.centroid, 1/float64(n))
 	sv.zmean = sv.centroid[2]

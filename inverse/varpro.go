@@ -75,8 +75,13 @@ type separable struct {
 	bbar              [][3]float64 // per column of a: its projection coefficients on them
 	dblk, full        []float64    // derivative columns; unweighted basis for residuals
 	lmWork            *[]float64   // the LM engine's workspace (shared within a fit), or nil
-	at                []float64    // x of the cached state
-	ok                bool
+	// Path-averaged readings (Problem.Travel): ptsLo and ptsHi are the outer
+	// Gauss-Legendre nodes of each reading's path, nil for point readings; tlo and
+	// thi are workspace for the basis and derivatives evaluated there.
+	ptsLo, ptsHi [][3]float64
+	tlo, thi     []float64
+	at           []float64 // x of the cached state
+	ok           bool
 }
 
 // dipGeom is the position of a fitted point dipole and its bounds.
@@ -189,6 +194,36 @@ func (sp *separable) buildPhi(phi []float64) error {
 // fillPhi writes the weighted basis: element (row, column c) goes to phi[row*rs +
 // pos[c]*cs], or phi[row*rs + c*cs] when pos is nil; columns with pos[c] < 0 are skipped.
 func (sp *separable) fillPhi(phi []float64, rs, cs int, pos []int) error {
+	sp.fillRaw(phi, rs, cs, pos, sp.pts)
+	col := func(c int) int {
+		if pos == nil {
+			return c
+		}
+		return pos[c]
+	}
+	if sp.ptsLo != nil {
+		// Path average by three-point Gauss-Legendre quadrature (pathMean), element by
+		// element over the written entries.
+		sp.tlo = grow(sp.tlo, len(phi))
+		sp.thi = grow(sp.thi, len(phi))
+		sp.fillRaw(sp.tlo, rs, cs, pos, sp.ptsLo)
+		sp.fillRaw(sp.thi, rs, cs, pos, sp.ptsHi)
+		for c := range sp.q {
+			pc := col(c)
+			if pc < 0 {
+				continue
+			}
+			for row := range sp.m {
+				k := row*rs + pc*cs
+				phi[k] = pathMean(sp.tlo[k], phi[k], sp.thi[k])
+			}
+		}
+	}
+	return sp.weightCheck(phi, rs, cs, col)
+}
+
+// fillRaw writes the unweighted basis at the points pts in the layout of fillPhi.
+func (sp *separable) fillRaw(phi []float64, rs, cs int, pos []int, pts [][3]float64) {
 	col := func(c int) int {
 		if pos == nil {
 			return c
@@ -199,7 +234,7 @@ func (sp *separable) fillPhi(phi []float64, rs, cs int, pos []int) error {
 	for l := range sp.geom {
 		ln := sp.geom[l].line()
 		u, p0, off := ln.Dir, ln.Point, col(l)*cs
-		for i, r := range sp.pts {
+		for i, r := range pts {
 			// Line.Field with the unit direction already in hand.
 			d0, d1, d2 := r[0]-p0[0], r[1]-p0[1], r[2]-p0[2]
 			du := d0*u[0] + d1*u[1] + d2*u[2]
@@ -214,7 +249,7 @@ func (sp *separable) fillPhi(phi []float64, rs, cs int, pos []int) error {
 	for di, d := range sp.dips {
 		c0 := sp.dipCol(di)
 		dp := Dipole{Pos: d.pos}
-		for i, r := range sp.pts {
+		for i, r := range pts {
 			dp.Basis(r, basis[:3])
 			for k := range 3 {
 				for j := range 3 {
@@ -238,7 +273,7 @@ func (sp *separable) fillPhi(phi []float64, rs, cs int, pos []int) error {
 	} else if nb > 0 && (pos == nil || nb > 3) {
 		bgc := Background{Origin: sp.org, Gradient: sp.bg == BackgroundGradient}
 		c0 := sp.bgCol()
-		for i, r := range sp.pts {
+		for i, r := range pts {
 			bgc.Basis(r, basis[:nb])
 			for k := range nb {
 				if c := col(c0 + k); c >= 0 {
@@ -249,6 +284,11 @@ func (sp *separable) fillPhi(phi []float64, rs, cs int, pos []int) error {
 			}
 		}
 	}
+}
+
+// weightCheck applies the row weights to the written entries of phi and reports a
+// basis that is not finite (a trial conductor through a sensor or its path).
+func (sp *separable) weightCheck(phi []float64, rs, cs int, col func(int) int) error {
 	for c := range sp.q {
 		pc := col(c)
 		if pc < 0 {
@@ -453,7 +493,28 @@ func (sp *separable) resid(x, r []float64) error {
 
 // dPhiC writes, for every free parameter p and right-hand side k, the weighted vector
 // (dPhi/dtheta_p) c_k into column p*nrhs+k of the m x (np*nrhs) column-major dst.
+//
+// With path-averaged readings every column is the quadrature average (pathMean) of the
+// derivatives at the nodes of each reading's path (the path does not depend on the
+// geometry, so the derivative of the average is the average of the derivatives).
 func (sp *separable) dPhiC(dst []float64, np int) {
+	sp.dPhiCAt(dst, np, sp.pts)
+	if sp.ptsLo == nil {
+		return
+	}
+	n := sp.m * np * sp.nrhs
+	sp.tlo = grow(sp.tlo, n)
+	sp.thi = grow(sp.thi, n)
+	sp.dPhiCAt(sp.tlo, np, sp.ptsLo)
+	sp.dPhiCAt(sp.thi, np, sp.ptsHi)
+	lo, hi := sp.tlo[:n], sp.thi[:n]
+	for k, v := range dst[:n] {
+		dst[k] = pathMean(lo[k], v, hi[k])
+	}
+}
+
+// dPhiCAt is dPhiC at the points pts (one per reading).
+func (sp *separable) dPhiCAt(dst []float64, np int, pts [][3]float64) {
 	nr, m := sp.nrhs, sp.m
 	dst = dst[:m*np*nr]
 	p := 0
@@ -491,11 +552,11 @@ func (sp *separable) dPhiC(dst []float64, np int) {
 			}
 		}
 		if nr == 1 && w == nil {
-			sp.dLineFast(out[:nd], dirs[:nd], uxv[:nd], isDir[:nd], u, p0, cl[0])
+			sp.dLineFast(out[:nd], dirs[:nd], uxv[:nd], isDir[:nd], u, p0, cl[0], pts)
 			p += g.nfree()
 			continue
 		}
-		for i, r := range sp.pts {
+		for i, r := range pts {
 			// B = K (u x d)/q, d = r - p0, q = |d|^2 - (d.u)^2, rho = d - (d.u) u.
 			// dB/dp0 . v = -K (u x v / q - 2 (rho.v)(u x d)/q^2)
 			// dB/du . w =  K (w x d / q + 2 (d.u)(d.w)(u x d)/q^2)
@@ -540,7 +601,7 @@ func (sp *separable) dPhiC(dst []float64, np int) {
 	for di, dg := range sp.dips {
 		dp := Dipole{Pos: dg.pos}
 		c0 := sp.dipCol(di)
-		for i, r := range sp.pts {
+		for i, r := range pts {
 			for h := range nr {
 				mom := [3]float64{sp.coef[c0*nr+h], sp.coef[(c0+1)*nr+h], sp.coef[(c0+2)*nr+h]}
 				_, dPos := dp.FieldJac(r, mom)
@@ -557,14 +618,14 @@ func (sp *separable) dPhiC(dst []float64, np int) {
 	}
 }
 
-// dLineFast is the line part of dPhiC for one right-hand side without weights: column k
-// of out receives c dB/dtheta_k at every reading, the point parameters first (their
+// dLineFast is the line part of dPhiCAt for one right-hand side without weights: column k
+// of out receives c dB/dtheta_k at every point of pts, the point parameters first (their
 // u x v precomputed in uxv), then the direction parameters.
-func (sp *separable) dLineFast(out [][2][]float64, dirs, uxv [][3]float64, isDir []bool, u, p0 [3]float64, c float64) {
+func (sp *separable) dLineFast(out [][2][]float64, dirs, uxv [][3]float64, isDir []bool, u, p0 [3]float64, c float64, pts [][3]float64) {
 	nd := len(dirs)
 	var cols [4][]float64
 	for k := range nd {
-		cols[k] = out[k][0][:3*len(sp.pts)]
+		cols[k] = out[k][0][:3*len(pts)]
 	}
 	// The two point parameters always come first; the direction ones follow.
 	np0 := 0
@@ -572,7 +633,7 @@ func (sp *separable) dLineFast(out [][2][]float64, dirs, uxv [][3]float64, isDir
 		np0++
 	}
 	kc := c * nT * k2pi
-	for i, r := range sp.pts {
+	for i, r := range pts {
 		d0, d1, d2 := r[0]-p0[0], r[1]-p0[1], r[2]-p0[2]
 		du := d0*u[0] + d1*u[1] + d2*u[2]
 		r0, r1, r2 := d0-du*u[0], d1-du*u[1], d2-du*u[2]
