@@ -381,19 +381,19 @@ func TestE2EACWalk(t *testing.T) {
 	}
 	truth := crossingsByLine(sc)
 	// A window is demodulated as a tone of constant amplitude, but the
-	// amplitude A changes as the sensor walks over the cable. Over a whole
-	// number of cycles a linear change a1 t of the amplitude projects onto
-	// the quadrature term as a1/(2 omega), so each window's phasor carries a
-	// quadrature error of (dA/dt)/(2 A omega) of its size, of order
-	// v/(2 omega h), which the line fit reads partly as a shift of the
-	// cable by millimetres: the bound v/omega = 3.2 mm (v = 1 m/s, omega =
+	// amplitude A changes as the sensor walks over the cable. Its mean over
+	// the window (about L^2/(12 h^2) below the field at the window's centre
+	// near the peak) is modelled by the fit (inverse.Problem.Travel), so
+	// current, depth and phase need no allowance. Over a whole number of
+	// cycles a linear change a1 t of the amplitude also leaves a term of
+	// a1/(2 omega) that turns with the window's time (not modelled), of
+	// order v/(2 omega h) of the phasor, which the line fit reads as a shift
+	// of the cable across the traverse by millimetres, alternating with the
+	// walking direction: the bound v/omega = 3.2 mm (v = 1 m/s, omega =
 	// 2 pi 50 Hz) is well inside any positioning error but more than the
-	// sub-millimetre sigma of 6,000 readings per traverse. Allow that
-	// length in depth and position, and the same fraction of the current
-	// (current scales with the distance to the cable, 1.1 m) and in radians
-	// of phase.
+	// sub-millimetre sigma of 6,000 readings per traverse. Allow that length
+	// in the position only.
 	lag := sc.Survey.Speed / (2 * math.Pi * 50)
-	lagFrac := lag / (0.8 + sc.Sensor.Height)
 	for _, g := range doc.Groups {
 		// 6 m at 1 m/s in 0.1 s windows.
 		if g.Points < 55 || g.Points > 61 {
@@ -412,7 +412,18 @@ func TestE2EACWalk(t *testing.T) {
 				t.Errorf("%s: a second source of %.3g A beside the %.3g A cable", g.Key, extra.Current, g.Sources[0].Current)
 			}
 		}
-		checkCrossing(t, g.Key, g.Sources[0], truth[g.Key][0], lagFrac, lag)
+		checkACCrossing(t, g.Key, g.Sources[0], truth[g.Key][0], lag)
+	}
+}
+
+// checkACCrossing is checkCrossing for the AC walk: current, phase and depth
+// within kSigma sigma, the position across the cable within kSigma sigma
+// plus lag (see TestE2EACWalk).
+func checkACCrossing(t *testing.T, key string, s docSource, c simulate.Crossing, lag float64) {
+	t.Helper()
+	checkCrossing(t, key, s, c, 0, lag)
+	if d := math.Abs(s.Depth - c.Depth); d > kSigma*s.DepthSigma {
+		t.Errorf("%s: depth %.5g ± %.2g m, true %.5g m (off by %.1f sigma)", key, s.Depth, s.DepthSigma, c.Depth, d/s.DepthSigma)
 	}
 }
 
@@ -420,30 +431,43 @@ func TestE2EACWalk(t *testing.T) {
 // field over 0.2 m of travel. Over the cable of the AC walk (0.8 m deep,
 // sensor 0.3 m up: 1.1 m away) the field of a line near its peak falls as
 // 1 - x^2/h^2 (Biot-Savart), so the average reads low by L^2/(12 h^2) =
-// 0.28%, over the 0.1% at which locate warns; 0.1 s windows (0.07%) raise
-// no warning.
+// 0.28%, far more than the noise allows. locate models each window's path
+// average (inverse.Problem.Travel), so 0.2 s windows recover the cable as
+// well as 0.1 s windows do, under the same allowances as TestE2EACWalk, and
+// raise no travel warning. Windows of 1.4 s (1.27 times the distance) leave
+// a quadrature remainder of about 3.6e-4 (L/h)^6 = 0.15%, over the 0.1% at
+// which locate warns.
 func TestE2EWindowTravel(t *testing.T) {
 	sc, doc := locateJSON(t, "ac-walk-2khz.toml", "--freq", "50", "--window", "0.2", "--group-by", "group", "--reference-z", "0")
-	l := sc.Survey.Speed * 0.2
+	for _, w := range doc.Warnings {
+		if strings.HasPrefix(w, "AC windows") {
+			t.Errorf("0.2 s windows (travel modelled) warned: %s", w)
+		}
+	}
+	truth := crossingsByLine(sc)
+	lag := sc.Survey.Speed / (2 * math.Pi * 50)
+	for _, g := range doc.Groups {
+		if len(g.Sources) == 0 {
+			t.Errorf("%s: no sources", g.Key)
+			continue
+		}
+		checkACCrossing(t, g.Key, g.Sources[0], truth[g.Key][0], lag)
+	}
+	_, doc = locateJSON(t, "ac-walk-2khz.toml", "--freq", "50", "--window", "1.4", "--group-by", "group", "--reference-z", "0")
+	l := sc.Survey.Speed * 1.4
 	h := 0.8 + sc.Sensor.Height
-	want := 100 * l * l / (12 * h * h)
+	want := 100 * 720 * math.Pow(l/(2*h), 6) / 31500
 	var got float64
 	for _, w := range doc.Warnings {
-		if i := strings.Index(w, "% below the field"); i > 0 && strings.HasPrefix(w, "AC windows") {
+		if i := strings.Index(w, "% near the peak"); i > 0 && strings.HasPrefix(w, "AC windows") {
 			j := strings.LastIndex(w[:i], " ")
 			got, _ = strconv.ParseFloat(w[j+1:i], 64)
 		}
 	}
-	// The warning takes the fitted depth and the walked speed from the
-	// windows' positions: allow 10% of the figure.
-	if math.Abs(got-want) > 0.1*want {
-		t.Errorf("window travel bias %.3g%%, want %.3g%% (warnings %q)", got, want, doc.Warnings)
-	}
-	_, doc = locateJSON(t, "ac-walk-2khz.toml", "--freq", "50", "--window", "0.1", "--group-by", "group", "--reference-z", "0")
-	for _, w := range doc.Warnings {
-		if strings.HasPrefix(w, "AC windows") {
-			t.Errorf("0.1 s windows (0.07%% bias) warned: %s", w)
-		}
+	// The warning takes the fitted depth and the travel from the windows'
+	// positions; the sixth power magnifies their errors: allow 25%.
+	if math.Abs(got-want) > 0.25*want {
+		t.Errorf("window travel remainder %.3g%%, want %.3g%% (warnings %q)", got, want, doc.Warnings)
 	}
 }
 

@@ -180,9 +180,11 @@ than --min-cover, fits that are poor or ambiguous, and magnetised objects
 groups with a point dipole). Groups with the same value in several logs are
 fitted together.
 
-With --freq, each window averages the field along the sensor's path; when
-that biases the field near the peak by more than 0.1% the run warns and
-suggests shorter windows or a slower walk.
+With --freq, each window averages the field along the sensor's path, and
+the fit models that average (a straight walk within each window); when the
+path is so long against the conductor's distance that the model may be off
+by more than 0.1% near the peak, the run warns and suggests shorter windows
+or a slower walk.
 
 With -o DIR it writes results.json (the result document), results.csv,
 route.geojson and report.html (the crew report) into DIR; the directory is
@@ -247,13 +249,16 @@ type group struct {
 	res     *inverse.Result // fit
 	err     error           // fit failure
 	travel  []float64       // AC: distance walked during each window, m
+	half    [][3]float64    // AC: each window's half-travel (calibrate.Window.Travel), m
 }
 
 // problem is the group's readings as an inverse problem.
 func (g *group) problem(ac bool, noise float64) *inverse.Problem {
 	p := &inverse.Problem{Points: g.points, Sigma: noise}
 	if ac {
-		p.Phasors = g.phasors
+		// Each window's phasor is the mean of the field along the path walked in
+		// it: the fit models that path average, not the field at its centre.
+		p.Phasors, p.Travel = g.phasors, g.half
 	} else {
 		p.Fields = g.fields
 	}
@@ -436,43 +441,35 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 		}
 		sv.doc.Signal = report.Signal{Mode: report.SignalAC, FrequencyHz: res.Freq, WindowS: win}
 	}
-	win := sv.doc.Signal.WindowS
-	for k, w := range res.Windows {
+	for _, w := range res.Windows {
 		g := get(w.Group)
 		g.points = append(g.points, w.Pos)
 		g.phasors = append(g.phasors, w.B)
-		// The walking speed from the neighbouring window of the same
-		// group, times the window's length.
-		for _, j := range []int{k + 1, k - 1} {
-			if j < 0 || j >= len(res.Windows) || res.Windows[j].Group != w.Group {
-				continue
-			}
-			o := res.Windows[j]
-			if dt := math.Abs(o.Time - w.Time); dt > 0 {
-				g.travel = append(g.travel, math.Hypot(o.Pos[0]-w.Pos[0], o.Pos[1]-w.Pos[1])/dt*win)
-			}
-			break
-		}
+		g.half = append(g.half, w.Travel)
+		g.travel = append(g.travel, 2*math.Sqrt(w.Travel[0]*w.Travel[0]+w.Travel[1]*w.Travel[1]+w.Travel[2]*w.Travel[2]))
 	}
 	return nil
 }
 
-// travelBiasLimit is the relative bias of a window's amplitude, from the
-// sensor moving while the window averages the field, above which locate
-// warns.
+// travelBiasLimit is the relative error of the modelled path average of a
+// window, above which locate warns.
 const travelBiasLimit = 1e-3
 
-// travelWarning says when AC windows are long enough for the sensor's
-// travel during each to bias the fitted field. Over a line conductor at
-// distance h the field near the peak falls as 1 - x^2/h^2 with the
-// horizontal distance x (Biot-Savart for an infinite line), so a window
-// averaging it over a travel L centred on the peak reads low by
+// travelWarning says when AC windows are so long that even the modelled
+// path average may be off. Each window's phasor is the mean of the field
+// along the path walked in it (about L^2/(12 h^2) below the field at its
+// centre near the peak of a line at distance h, for a travel L), and the
+// fit models that mean (inverse.Problem.Travel) by three-point
+// Gauss-Legendre quadrature, whose relative error over a line is about
 //
-//	L^2 / (12 h^2)
+//	3.6e-4 (L/h)^6
 //
-// relative. It takes each group's median travel per window and the
-// distance from the sensors' mean height to its strongest conductor, and
-// returns "" when no group exceeds travelBiasLimit.
+// (Abramowitz & Stegun 25.4.30, see inverse/travel.go), negligible until
+// the travel approaches the distance. The model also assumes a straight,
+// steady walk within each window. It takes each group's median travel per
+// window and the distance from the sensors' mean height to its strongest
+// conductor, and returns "" when no group's remainder exceeds
+// travelBiasLimit.
 func travelWarning(sv *survey) string {
 	worst, worstKey := 0.0, ""
 	var keys []string
@@ -491,7 +488,7 @@ func travelWarning(sv *survey) string {
 			continue
 		}
 		l := medianOf(g.travel)
-		b := l * l / (12 * h * h)
+		b := travelRemainder(l / h)
 		if b > travelBiasLimit {
 			keys = append(keys, g.key)
 			if b > worst {
@@ -510,8 +507,16 @@ func travelWarning(sv *survey) string {
 	if n > 8 {
 		keys = append(keys[:8], fmt.Sprintf("and %d more", n-8))
 	}
-	return fmt.Sprintf("AC windows: the sensor moved about %.2f m during each %.3g s window; at %s (%.2f m above the conductor) a window's average of the field is about %.2f%% below the field at its centre near the peak (travel^2/(12 h^2)), which biases the fitted depth and current; %d group(s) over %.1f%% (%s). For a cleaner fit use shorter windows (--window, at least three cycles) or walk more slowly",
-		travel, sv.doc.Signal.WindowS, where, dist, 100*worst, n, 100*travelBiasLimit, strings.Join(keys, ", "))
+	return fmt.Sprintf("AC windows: the sensor moved about %.2f m during each %.3g s window, at %s %.2f times its distance to the conductor (%.2f m); the fit models each window as the average of the field along a straight path, but with so long a path that model is only good to about %.2g%% near the peak; %d group(s) over %.1f%% (%s). For a cleaner fit use shorter windows (--window, at least three cycles) or walk more slowly",
+		travel, sv.doc.Signal.WindowS, where, travel/dist, dist, 100*worst, n, 100*travelBiasLimit, strings.Join(keys, ", "))
+}
+
+// travelRemainder is the relative error of the three-point Gauss-Legendre
+// path average near the peak of a line, for a travel of r times the
+// distance: 720 (r/2)^6 / 31500 (inverse/travel.go).
+func travelRemainder(r float64) float64 {
+	h := r / 2
+	return 720 * h * h * h * h * h * h / 31500
 }
 
 // medianOf returns the median of v (0 when empty) without modifying it.
