@@ -30,7 +30,7 @@ type Problem struct {
 	// a field of degree five along the path, with a relative error of about
 	// 3.6e-4 (L/h)^6 over a line at distance h for a travel L = 2 |Travel| (2.3e-8 at
 	// L/h = 0.2, where Simpson's rule at the same cost would leave 1.3e-5; see
-	// travel.go). Nil means point readings.
+	// the package documentation). Nil means point readings.
 	Travel [][3]float64
 }
 

@@ -23,7 +23,8 @@ import (
 // the order of sources (AC: Result.StrengthPhasors, with StrengthSigmas the one-sigma of
 // each real and imaginary part, equal to that of the magnitude to first order).
 // Result.Sources has one entry per Line source, in order, with the geometry held.
-// Only set.Background and set.ReferenceZ are used from the settings.
+// Only set.Background and set.ReferenceZ are used from the settings. With p.Travel set
+// the sources' fields are averaged along each reading's path (see Problem.Travel).
 func FitStrengths(p *Problem, sources []Source, set *Settings) (*Result, error) {
 	if p == nil {
 		return nil, errors.New("inverse: nil problem")

@@ -49,7 +49,7 @@ func pathReadings(pts, trav [][3]float64, lines []Line, currents []float64, bg [
 // TestPathAverageMatchesFineMean (brief item a): with Travel set, the model of a line is
 // its mean along the path. At L/h = 0.2 (L = 2|Travel|, h the distance to the line) the
 // three-point Gauss-Legendre mean agrees with a 2,000-panel midpoint mean of Line.Field
-// to 1e-6 relative (its remainder is about 2e-8 there, see travel.go), both through the
+// to 1e-6 relative (its remainder is about 2e-8 there, see the package documentation), both through the
 // variable projection's basis and through FitStrengths' predictions. Simpson's rule would
 // miss by 1.3e-5 at the peak; the test would catch that.
 func TestPathAverageMatchesFineMean(t *testing.T) {
@@ -109,6 +109,19 @@ func TestPathAverageMatchesFineMean(t *testing.T) {
 	}
 	if !relClose(res.Strengths[0], 7.5, tol) {
 		t.Errorf("FitStrengths current %.9g, want 7.5", res.Strengths[0])
+	}
+	// StrengthsRSS builds the same averaged basis: the exact path means leave no residual
+	// (against 1e-3 nT^2 and more if the point field were used).
+	rss, err := StrengthsRSS(&Problem{Points: pts, Fields: fields, Travel: trav}, []Source{line}, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	rssPoint, err := StrengthsRSS(&Problem{Points: pts, Fields: fields}, []Source{line}, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if rss > 1e-6*rssPoint || rssPoint < 1e-2 {
+		t.Errorf("StrengthsRSS with travel %.3g nT^2, as point readings %.3g nT^2", rss, rssPoint)
 	}
 	for i := range pts {
 		if !vecClose(sub(res.Predicted[i], [3]float64{100, -200, 300}), scale(want[i], 7.5), tol) {

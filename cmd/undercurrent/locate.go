@@ -464,7 +464,7 @@ const travelBiasLimit = 1e-3
 //
 //	3.6e-4 (L/h)^6
 //
-// (Abramowitz & Stegun 25.4.30, see inverse/travel.go), negligible until
+// (Abramowitz & Stegun 25.4.30; see the inverse package documentation), negligible until
 // the travel approaches the distance. The model also assumes a straight,
 // steady walk within each window. It takes each group's median travel per
 // window and the distance from the sensors' mean height to its strongest
@@ -513,7 +513,7 @@ func travelWarning(sv *survey) string {
 
 // travelRemainder is the relative error of the three-point Gauss-Legendre
 // path average near the peak of a line, for a travel of r times the
-// distance: 720 (r/2)^6 / 31500 (inverse/travel.go).
+// distance: 720 (r/2)^6 / 31500 (the inverse package documentation).
 func travelRemainder(r float64) float64 {
 	h := r / 2
 	return 720 * h * h * h * h * h * h / 31500
