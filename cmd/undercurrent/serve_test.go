@@ -289,7 +289,28 @@ func TestServeSurvivesSIGKILL(t *testing.T) {
 		t.Errorf("replay output: %q", replayOut.String())
 	}
 	pollUntil(t, 30*time.Second, fmt.Sprintf("%d estimates", nWin), func() bool { return len(readEstimates(t, js)) >= nWin })
-	time.Sleep(200 * time.Millisecond) // a duplicate, if any, would land now
+	survivor := map[string]string{"w1": "w2", "w2": "w1"}[victim]
+
+	// SIGTERM drains the survivor: it exits 0 and hands the lease back.
+	s := workers[survivor]
+	s.cmd.Process.Signal(syscall.SIGTERM)
+	select {
+	case <-s.done:
+		if s.err != nil {
+			t.Errorf("survivor after SIGTERM: %v", s.err)
+		}
+	case <-time.After(20 * time.Second):
+		t.Fatal("survivor did not exit within 20 s of SIGTERM")
+	}
+	if h := lease(); h != "" {
+		t.Errorf("lease still held by %q after a graceful stop", h)
+	}
+	logText, _ := os.ReadFile(s.log)
+	if !strings.Contains(string(logText), "drained") {
+		t.Errorf("survivor log does not report draining:\n%s", logText)
+	}
+
+	// No worker is left to publish: the stored estimates are final.
 	ests := readEstimates(t, js)
 	if killedAt >= nWin {
 		t.Fatalf("the victim had published every window before it was killed; the test did not test a takeover")
@@ -297,7 +318,6 @@ func TestServeSurvivesSIGKILL(t *testing.T) {
 
 	k0 := int64(math.Floor(simT0/simWindow + 1e-7))
 	seen := map[int64]int{}
-	survivor := map[string]string{"w1": "w2", "w2": "w1"}[victim]
 	var bySurvivor int
 	est, _ := live.NewInverseEstimator("dc", []live.ConductorConfig{{Name: "cable", Kind: "line", Point: simLine.Point, Direction: simLine.Dir}})
 	for _, e := range ests {
@@ -334,25 +354,6 @@ func TestServeSurvivesSIGKILL(t *testing.T) {
 	}
 	if bySurvivor == 0 {
 		t.Errorf("worker %s published nothing after %s was killed", survivor, victim)
-	}
-
-	// SIGTERM drains the survivor: it exits 0 and hands the lease back.
-	s := workers[survivor]
-	s.cmd.Process.Signal(syscall.SIGTERM)
-	select {
-	case <-s.done:
-		if s.err != nil {
-			t.Errorf("survivor after SIGTERM: %v", s.err)
-		}
-	case <-time.After(20 * time.Second):
-		t.Fatal("survivor did not exit within 20 s of SIGTERM")
-	}
-	if h := lease(); h != "" {
-		t.Errorf("lease still held by %q after a graceful stop", h)
-	}
-	logText, _ := os.ReadFile(s.log)
-	if !strings.Contains(string(logText), "drained") {
-		t.Errorf("survivor log does not report draining:\n%s", logText)
 	}
 }
 

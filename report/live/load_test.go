@@ -155,8 +155,25 @@ func runLoad(b *testing.B, assets, workers int, mode string, pace float64, secon
 	pub, _ := broker.Connect(srv.ClientURL(), "load-publisher", broker.Auth{})
 	defer pub.Close()
 	js, _ := jetstream.New(pub, jetstream.WithPublishAsyncMaxPending(8192))
-	// Let the workers take their leases before the clock starts.
-	time.Sleep(3 * site.Service.LeaseTTL.Duration / 4)
+	// Start the clock once every asset is held by a worker.
+	leases, err := js.KeyValue(context.Background(), broker.BucketLease)
+	if err != nil {
+		b.Fatal(err)
+	}
+	for deadline := time.Now().Add(30 * time.Second); ; time.Sleep(10 * time.Millisecond) {
+		held := 0
+		for _, a := range site.Assets {
+			if _, err := leases.Get(context.Background(), a.Name); err == nil {
+				held++
+			}
+		}
+		if held == len(site.Assets) {
+			break
+		}
+		if time.Now().After(deadline) {
+			b.Fatalf("%d of %d assets held after 30 s", held, len(site.Assets))
+		}
+	}
 	var ms0 runtime.MemStats
 	runtime.ReadMemStats(&ms0)
 	b.ResetTimer()

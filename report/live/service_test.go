@@ -419,7 +419,9 @@ func TestTakeoverExactlyOnce(t *testing.T) {
 	b := h.start(site, "wb")
 	h.publish(3, 3)
 	waitFor(t, 30*time.Second, "12 estimates", func() bool { return len(h.estimates()) >= 12 })
-	time.Sleep(300 * time.Millisecond) // let any duplicate land before counting
+	// Count once no worker can publish any more: a is cut off and b has
+	// drained, so a duplicate would already be stored.
+	b.stop(t)
 	ests := h.estimates()
 	checkExactlyOnce(t, ests, 12)
 	var fromB int
@@ -431,7 +433,6 @@ func TestTakeoverExactlyOnce(t *testing.T) {
 	if fromB == 0 {
 		t.Error("worker b published nothing; the takeover did not happen")
 	}
-	b.stop(t)
 }
 
 // Reliability (issue 6): graceful shutdown drains; the lease is handed
@@ -495,9 +496,8 @@ func TestBrokerRestartUnderService(t *testing.T) {
 	connect()
 	h.publish(2, 2)
 	waitFor(t, 60*time.Second, "8 estimates", func() bool { return len(h.estimates()) >= 8 })
-	time.Sleep(200 * time.Millisecond)
+	r.stop(t) // drained: nothing more can land
 	checkExactlyOnce(t, h.estimates(), 8)
-	r.stop(t)
 }
 
 // Scale out (issue 6): a worker that joins later gets a share of the
@@ -543,12 +543,11 @@ func TestWorkSharing(t *testing.T) {
 	for _, as := range assets {
 		waitFor(t, 30*time.Second, "6 estimates of "+as, func() bool { return len(h.estimatesOf(as)) >= 6 })
 	}
-	time.Sleep(200 * time.Millisecond)
+	a.stop(t) // both drained: nothing more can land
+	b.stop(t)
 	for _, as := range assets {
 		checkExactlyOnce(t, h.estimatesOf(as), 6) // both assets get the same data
 	}
-	a.stop(t)
-	b.stop(t)
 }
 
 // Data for an asset that the site file does not list is dead-lettered as
@@ -625,9 +624,20 @@ func TestUnknownAssetDeadLettered(t *testing.T) {
 		return 0
 	}
 	waitFor(t, 10*time.Second, "5 unknown-asset dead letters counted", func() bool { return metric(r1)+metric(r2) == 5 })
-	// Once each: a few more sweeps add nothing.
-	sweeps := time.Now()
-	waitFor(t, 10*time.Second, "three more sweeps", func() bool { return time.Since(sweeps) > 3*site.Service.LeaseTTL.Duration })
+	// Once each: when the shared consumer has delivered and had
+	// acknowledged every message, no more can come.
+	data, err := h.js.Stream(ctx, broker.StreamData)
+	if err != nil {
+		t.Fatal(err)
+	}
+	waitFor(t, 10*time.Second, "the unknown-asset consumer to be drained", func() bool {
+		c, err := data.Consumer(ctx, unknownConsumerName("kestrel-moor-spur"))
+		if err != nil {
+			return false
+		}
+		ci, err := c.Info(ctx)
+		return err == nil && ci.NumPending == 0 && ci.NumAckPending == 0 && ci.Delivered.Stream > 0
+	})
 	if n := count(); n != 5 {
 		t.Errorf("%d unknown-asset dead letters, want 5", n)
 	}
