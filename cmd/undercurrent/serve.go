@@ -39,7 +39,8 @@ sensor batches arriving on uc.data.<asset>.<sensor> (NATS, or MQTT topic
 uc/data/<asset>/<sensor>) are windowed per asset, calibrated, demodulated
 for AC and solved with the conductor geometry held; estimates go to
 uc.est.<asset> and alarms to uc.alarm.<asset>.<kind>, both kept in the
-broker, and refused messages to uc.dlq.<reason>.
+broker, and refused messages to uc.dlq.<reason> (data for an asset the
+site file does not list go to uc.dlq.unknown-asset).
 
 By default serve starts an embedded NATS server with JetStream (file store
 in --data) and its MQTT listener, at the addresses in the site file's
@@ -51,8 +52,11 @@ windows are published and leases handed back before exit.
 
 HTTP API (loopback by default): /healthz, /readyz, /metrics,
 /api/v1/assets, /api/v1/assets/ASSET/latest,
-/api/v1/assets/ASSET/history?from=&to=&format=csv, /api/v1/alarms.
-POST /api/v1/assets/ASSET/recommission needs the service token.
+/api/v1/assets/ASSET/history?from=&to=&limit=&format=csv,
+/api/v1/alarms?asset=&kind=&from=&to=&since=&limit=. from and to are window
+starts (seconds or RFC 3339), since is when an alarm was stored; a listing
+returns the first limit results of its range (default 10000, at most
+100000). POST /api/v1/assets/ASSET/recommission needs the service token.
 
 Examples:
   undercurrent serve --config testdata/site/harrow-fen.toml --data /var/lib/undercurrent

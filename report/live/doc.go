@@ -57,6 +57,22 @@
 // above max_chi2, or the solve failed). Each is published on
 // uc.alarm.<asset>.<kind> with message id "<asset>/<window>/<kind>/<subject>".
 //
+// # Queries
+//
+// History and Alarms do not scan the stored streams: a binary search over
+// stream sequences, each probe a server-side "next message on this subject
+// at or after this sequence" lookup, finds the first message of the
+// range, an ordered consumer reads from there, and reading stops at the
+// end of the range or the limit. A query reads about log2(stream length)
+// plus the number of results messages (uc_query_messages_read_total).
+//
+// # Unknown assets
+//
+// Every worker sweeps the subjects stored in UC_DATA once per lease TTL;
+// data for an asset the site file does not list is read through a durable
+// consumer per such asset, shared by the workers, and dead-lettered to
+// uc.dlq.unknown-asset (see unknown.go).
+//
 // References: IEEE Std 1057-2017 and IEEE Std 1241-2010 (sine fitting);
 // G. H. Golub and V. Pereyra, SIAM J. Numer. Anal. 10(2):413-432 (1973)
 // (separable least squares); the NATS JetStream documentation (message
