@@ -578,6 +578,10 @@ func TestUnknownAssetDeadLettered(t *testing.T) {
 	for i := 3; i < 5; i++ {
 		pubUnknown(i)
 	}
+	// A listed asset without the sensor token: no worker's filter matches.
+	if _, err := h.js.Publish(ctx, "uc.data.fenwick-lane", []byte(`{"time":[1],"bx":[1],"by":[1],"bz":[1]}`)); err != nil {
+		t.Fatal(err)
+	}
 	h.publish(1, 1)
 	dlq, err := h.js.Stream(ctx, broker.StreamDeadLetter)
 	if err != nil {
@@ -631,7 +635,7 @@ func TestUnknownAssetDeadLettered(t *testing.T) {
 		t.Fatal(err)
 	}
 	waitFor(t, 10*time.Second, "the unknown-asset consumer to be drained", func() bool {
-		c, err := data.Consumer(ctx, unknownConsumerName("kestrel-moor-spur"))
+		c, err := data.Consumer(ctx, unknownConsumerName(broker.ReasonUnknownAsset+"/kestrel-moor-spur"))
 		if err != nil {
 			return false
 		}
@@ -641,6 +645,11 @@ func TestUnknownAssetDeadLettered(t *testing.T) {
 	if n := count(); n != 5 {
 		t.Errorf("%d unknown-asset dead letters, want 5", n)
 	}
+	waitFor(t, 10*time.Second, "the sensor-less subject dead-lettered", func() bool {
+		m, err := dlq.GetLastMsgForSubject(ctx, broker.DeadLetterSubject(broker.ReasonMalformed))
+		return err == nil && m.Header.Get(broker.HeaderSubject) == "uc.data.fenwick-lane" &&
+			strings.Contains(m.Header.Get(broker.HeaderError), "want uc.data.<asset>.<sensor>")
+	})
 	r1.stop(t)
 	r2.stop(t)
 }

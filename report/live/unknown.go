@@ -23,22 +23,25 @@ import (
 // so each is dead-lettered once however many workers sweep (and the
 // dead-letter stream's deduplication on "dlq/<sequence>" covers a worker
 // that dies between the two). Known assets are never read twice: the
-// sweep reads only the unknown assets' messages.
+// sweep reads only the unknown assets' messages. Messages on
+// uc.data.<asset> with no sensor token, which no worker's filter matches
+// either, are dead-lettered the same way as malformed.
 
 const unknownConsumerPrefix = "uc-unknown-"
 
-// unknownConsumerName returns the durable consumer name for an unknown
-// asset token (hashed: a token may hold characters a name may not).
-func unknownConsumerName(asset string) string {
+// unknownConsumerName returns the durable consumer name for the key
+// "<reason>/<asset token>" (hashed: a token may hold characters a name
+// may not).
+func unknownConsumerName(key string) string {
 	h := fnv.New64a()
-	h.Write([]byte(asset))
+	h.Write([]byte(key))
 	return fmt.Sprintf("%s%016x", unknownConsumerPrefix, h.Sum64())
 }
 
 // unknownLoop sweeps every period until ctx ends.
 func (s *Service) unknownLoop(ctx context.Context, period time.Duration) {
 	s.forgetKnownUnknowns(ctx)
-	made := map[string]jetstream.Consumer{}
+	made := map[string]*orphanConsumer{}
 	tick := time.NewTicker(period)
 	defer tick.Stop()
 	for {
@@ -63,7 +66,8 @@ func (s *Service) forgetKnownUnknowns(ctx context.Context) {
 	l := st.ListConsumers(ctx)
 	var drop []string
 	for ci := range l.Info() {
-		if strings.HasPrefix(ci.Name, unknownConsumerPrefix) && s.site.Asset(ci.Config.Metadata["uc-asset"]) != nil {
+		if strings.HasPrefix(ci.Name, unknownConsumerPrefix) && ci.Config.Metadata["uc-reason"] == broker.ReasonUnknownAsset &&
+			s.site.Asset(ci.Config.Metadata["uc-asset"]) != nil {
 			drop = append(drop, ci.Name)
 		}
 	}
@@ -76,7 +80,7 @@ func (s *Service) forgetKnownUnknowns(ctx context.Context) {
 
 // sweepUnknown finds unknown assets in UC_DATA and dead-letters their
 // messages; made caches the consumers already created.
-func (s *Service) sweepUnknown(ctx context.Context, made map[string]jetstream.Consumer) error {
+func (s *Service) sweepUnknown(ctx context.Context, made map[string]*orphanConsumer) error {
 	rctx, cancel := context.WithTimeout(ctx, 10*time.Second)
 	defer cancel()
 	st, err := s.stores.JS.Stream(rctx, broker.StreamData)
@@ -92,40 +96,63 @@ func (s *Service) sweepUnknown(ctx context.Context, made map[string]jetstream.Co
 		if !ok {
 			continue
 		}
-		asset, _, _ := strings.Cut(rest, ".")
-		if s.site.Asset(asset) != nil || made[asset] != nil {
+		asset, _, hasSensor := strings.Cut(rest, ".")
+		o := orphan{asset: asset, reason: broker.ReasonUnknownAsset,
+			filters: []string{broker.DataPrefix + "." + asset, broker.DataPrefix + "." + asset + ".>"}}
+		if s.site.Asset(asset) != nil {
+			if hasSensor {
+				continue // the asset's worker reads it
+			}
+			// uc.data.<asset> without a sensor: no worker's filter
+			// (uc.data.<asset>.>) matches it.
+			o.reason, o.filters = broker.ReasonMalformed, []string{subj}
+		}
+		key := o.reason + "/" + asset
+		if made[key] != nil {
 			continue
 		}
-		name := unknownConsumerName(asset)
 		cons, err := st.CreateOrUpdateConsumer(rctx, jetstream.ConsumerConfig{
-			Durable:        name,
-			Description:    "dead-letters data of an asset not in the site file",
-			FilterSubjects: []string{broker.DataPrefix + "." + asset, broker.DataPrefix + "." + asset + ".>"},
+			Durable:        unknownConsumerName(key),
+			Description:    "dead-letters data that no asset worker reads",
+			FilterSubjects: o.filters,
 			DeliverPolicy:  jetstream.DeliverAllPolicy,
 			AckPolicy:      jetstream.AckExplicitPolicy,
 			AckWait:        30 * time.Second,
-			Metadata:       map[string]string{"uc-asset": asset},
+			Metadata:       map[string]string{"uc-asset": asset, "uc-reason": o.reason},
 		})
 		if err != nil {
-			s.log.Warn("unknown-asset consumer not created", "asset", asset, "err", err)
+			s.log.Warn("consumer for unread data not created", "asset", asset, "reason", o.reason, "err", err)
 			continue
 		}
-		s.log.Warn("data for an asset not in the site file: dead-lettering it", "asset", asset, "reason", broker.ReasonUnknownAsset)
-		made[asset] = cons
+		s.log.Warn("data that no asset worker reads: dead-lettering it", "asset", asset, "reason", o.reason)
+		made[key] = &orphanConsumer{orphan: o, cons: cons}
 	}
 	var errs []error
-	for asset, cons := range made {
-		if err := s.drainUnknown(ctx, asset, cons); err != nil {
+	for _, oc := range made {
+		if err := s.drainUnknown(ctx, oc); err != nil {
 			errs = append(errs, err)
 		}
 	}
 	return errors.Join(errs...)
 }
 
-// drainUnknown dead-letters what cons holds now.
-func (s *Service) drainUnknown(ctx context.Context, asset string, cons jetstream.Consumer) error {
+// orphan describes data that no asset worker reads: an asset the site
+// file does not list (unknown-asset), or a subject uc.data.<asset> of a
+// listed asset without the sensor token (malformed).
+type orphan struct {
+	asset, reason string
+	filters       []string
+}
+
+type orphanConsumer struct {
+	orphan
+	cons jetstream.Consumer
+}
+
+// drainUnknown dead-letters what oc's consumer holds now.
+func (s *Service) drainUnknown(ctx context.Context, oc *orphanConsumer) error {
 	for ctx.Err() == nil {
-		mb, err := cons.FetchNoWait(256)
+		mb, err := oc.cons.FetchNoWait(256)
 		if err != nil {
 			return err
 		}
@@ -136,15 +163,18 @@ func (s *Service) drainUnknown(ctx context.Context, asset string, cons jetstream
 			if md, err := m.Metadata(); err == nil {
 				seq = md.Sequence.Stream
 			}
-			cause := fmt.Errorf("live: %s: asset %q is not in the site file", m.Subject(), asset)
+			cause := fmt.Errorf("live: %s: asset %q is not in the site file", m.Subject(), oc.asset)
+			if oc.reason != broker.ReasonUnknownAsset {
+				cause = fmt.Errorf("live: subject %q: want %s.<asset>.<sensor>", m.Subject(), broker.DataPrefix)
+			}
 			dctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
-			err := broker.DeadLetter(dctx, s.stores.JS, broker.ReasonUnknownAsset, m.Subject(), seq, m.Data(), cause)
+			err := broker.DeadLetter(dctx, s.stores.JS, oc.reason, m.Subject(), seq, m.Data(), cause)
 			cancel()
 			if err != nil {
 				m.Nak()
 				return err
 			}
-			s.met.deadLetters.WithLabelValues(broker.ReasonUnknownAsset).Inc()
+			s.met.deadLetters.WithLabelValues(oc.reason).Inc()
 			if err := m.Ack(); err != nil {
 				return err
 			}
