@@ -216,3 +216,37 @@ func TestHistoryReadsOnlyTheRange(t *testing.T) {
 	}
 	r.stop(t)
 }
+
+// BenchmarkHistoryLateWindow times a query for 10 late windows of a
+// 2,000-window history of two assets (4,000 stored estimates), against
+// a full scan of the asset's estimates.
+func BenchmarkHistoryLateWindow(b *testing.B) {
+	h := newHarness(b)
+	two := testSiteText + strings.Replace(testSiteText[strings.Index(testSiteText, "[[asset]]"):], "fenwick-lane", "harrow-fen-busbar", 1)
+	r := h.start(testSite(b, two), "w1")
+	h.storeHistory(0, 2000)
+	ctx := context.Background()
+	b.Run("positioned", func(b *testing.B) {
+		for b.Loop() {
+			got, err := r.svc.History(ctx, "fenwick-lane", t0+0.5*1990, t0+0.5*2000, 100)
+			if err != nil || len(got) != 10 {
+				b.Fatal(len(got), err)
+			}
+		}
+	})
+	b.Run("fullscan", func(b *testing.B) {
+		for b.Loop() {
+			n := 0
+			err := scan(ctx, h.js, broker.StreamEstimates, broker.EstimateSubject("fenwick-lane"), func(d []byte) bool {
+				if s, ok := startOf(d); ok && s >= t0+0.5*1990 && s < t0+0.5*2000 {
+					n++
+				}
+				return true
+			})
+			if err != nil || n != 10 {
+				b.Fatal(n, err)
+			}
+		}
+	})
+	r.stop(b)
+}

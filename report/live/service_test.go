@@ -74,13 +74,13 @@ window = "500ms"
 `
 
 type harness struct {
-	t   *testing.T
+	t   testing.TB
 	srv *broker.Server
 	js  jetstream.JetStream
 	nc  *nats.Conn
 }
 
-func newHarness(t *testing.T) *harness {
+func newHarness(t testing.TB) *harness {
 	t.Helper()
 	srv, err := broker.StartServer(broker.ServerConfig{StoreDir: t.TempDir(), MQTTPort: -1})
 	if err != nil {
@@ -101,7 +101,7 @@ func newHarness(t *testing.T) *harness {
 	return &harness{t: t, srv: srv, js: js, nc: nc}
 }
 
-func testSite(t *testing.T, text string) *Site {
+func testSite(t testing.TB, text string) *Site {
 	t.Helper()
 	s, err := ParseSite("test.toml", []byte(text))
 	if err != nil {
@@ -143,7 +143,7 @@ func (h *harness) start(site *Site, worker string) *running {
 }
 
 // stop cancels the service and waits for it to drain.
-func (r *running) stop(t *testing.T) {
+func (r *running) stop(t testing.TB) {
 	t.Helper()
 	r.cancel()
 	select {
