@@ -39,11 +39,25 @@
 //
 //	u = (sin az cos dip, cos az cos dip, -sin dip)
 //
-// with az the azimuth clockwise from north and dip positive descending along u. For a
-// single traverse only the line's crossing and current are determined in practice (the
-// along-line component of the field, which would carry the azimuth and dip, is hostage to
-// sensor heading errors), so az is held perpendicular to the traverse and dip at zero and
-// both are reported as not identifiable. Over several traverses both are fitted. Bounds
+// with az the azimuth clockwise from north and dip positive descending along u. Over
+// several traverses az and dip are fitted from the start. A single three-axis traverse
+// determines them too: B_line = (mu0 I / 2 pi) u x d / |d|^2 is perpendicular to u
+// everywhere, so as the sensor passes over the line the background-free field vectors
+// sweep the plane perpendicular to u, and that plane fixes u. To first order a turn
+// delta_az about the vertical puts a component delta_az B_across out of the traverse's
+// vertical plane (along the line), and a tilt delta_dip puts delta_dip B_up there;
+// both vary along the traverse, so a uniform background cannot absorb them (only a one-
+// or two-component log would lose them). The plane of the traverse is then the crossing
+// plane, so s and z are the line's crossing of it, and at zero offset their derivatives
+// are orthogonal to those of az and dip: freeing the angles leaves the Cramer-Rao bound
+// on current and depth unchanged to first order. A single-traverse line is first fitted
+// with az perpendicular and dip 0 held (the seeding of the crossing is made for that),
+// then released and iterated from there, with az kept within 60 degrees of the
+// perpendicular (a line turned along the traverse no longer varies along it). When the
+// covariance shows the angles not determined (rank loss, a sigma above 15 degrees, or az
+// at that bound) a count of lines with such a line is rejected, and for the final fit
+// the angles are held perpendicular and level again and reported as not identifiable,
+// with a note saying why. Settings.Azimuth and Settings.Dip hold them on request. Bounds
 // keep every line at least Settings.MinDepth below the lowest sensor.
 //
 // # Separable least squares (variable projection)

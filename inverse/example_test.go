@@ -41,7 +41,7 @@ func ExampleFitLines() {
 	// current: 35.00 A (one sigma 0.017 A)
 	// depth of cover: 0.600 m (one sigma 0.4 mm) below ReferenceZ
 	// offset: 0.250 m east of the marker
-	// azimuth identifiable: false
+	// azimuth identifiable: true
 }
 
 // The live pipeline knows where the Fenwick Lane cable and its return run and only

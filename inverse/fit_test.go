@@ -49,8 +49,16 @@ func TestFitLinesSingleTraverseNoiseFree(t *testing.T) {
 	if !relClose(e.Current, 10, 1e-8) || !relClose(e.Depth, 1.2, 1e-8) || math.Abs(e.Offset-0.3) > 1e-8 {
 		t.Errorf("got current %v depth %v offset %v", e.Current, e.Depth, e.Offset)
 	}
-	if e.Identifiable.Azimuth || e.Identifiable.Dip {
-		t.Errorf("azimuth/dip should be reported as not identifiable on one traverse")
+	// A three-axis traverse determines the direction too (the field of a line is
+	// perpendicular to it everywhere): fitted, with a sigma, at the true 0 deg and 0.
+	if !e.Identifiable.Azimuth || !e.Identifiable.Dip || !res.SingleTraverse {
+		t.Errorf("azimuth/dip should be fitted and identifiable on one three-axis traverse: %+v", e.Identifiable)
+	}
+	if az := math.Remainder(e.Azimuth, 180); math.Abs(az) > 1e-7 || math.Abs(e.Dip) > 1e-7 {
+		t.Errorf("azimuth %v dip %v, want 0 and 0", e.Azimuth, e.Dip)
+	}
+	if !(e.AzimuthSigma > 0) || !(e.DipSigma > 0) {
+		t.Errorf("azimuth sigma %v dip sigma %v, want positive", e.AzimuthSigma, e.DipSigma)
 	}
 }
 

@@ -58,8 +58,41 @@ func FitLines(p *Problem, set *Settings) (*Result, error) {
 	if sv.single && s.Background == BackgroundGradient {
 		return nil, errors.New("inverse: a background gradient cannot be resolved from a single traverse; use BackgroundUniform")
 	}
-	f := &fitter{sv: sv, set: &s, prob: p, lmWork: lmWorkPool.Get().(*[]float64)}
-	defer lmWorkPool.Put(f.lmWork)
+	work := lmWorkPool.Get().(*[]float64)
+	defer lmWorkPool.Put(work)
+	f := &fitter{sv: sv, set: &s, prob: p, lmWork: work}
+	res, err := f.run()
+	if !sv.single || (s.Azimuth != nil && s.Dip != nil) {
+		return res, err
+	}
+	// A three-axis traverse determines the lines' azimuth and dip (see the package
+	// documentation); when the fit with them free fails, or its covariance says they
+	// were not determined (rank loss, or a sigma too large for the linearisation to
+	// mean anything), hold them and say so.
+	var bad bool
+	var why string
+	if err != nil {
+		bad, why = true, err.Error()
+	} else {
+		bad, why = singleAnglesUndetermined(res)
+	}
+	if !bad {
+		return res, nil
+	}
+	g := &fitter{sv: sv, set: &s, prob: p, lmWork: work, holdSingle: true}
+	res2, err2 := g.run()
+	if err2 != nil {
+		// The free fit stands (with its notes on what it did not resolve), or its error.
+		return res, err
+	}
+	res2.Starts += f.starts
+	res2.Notes = append(res2.Notes, "azimuth and dip fitted from the traverse were not determined ("+why+"): held perpendicular to it and horizontal")
+	return res2, nil
+}
+
+// run fits Settings.Count lines, or chooses the count, and reports the fit.
+func (f *fitter) run() (*Result, error) {
+	s := f.set
 	if s.Count > 0 {
 		var prev *candidate
 		var err error
@@ -119,13 +152,20 @@ type fitter struct {
 	starts    int
 	floor     float64 // noiseFloor, once computed
 	floorDone bool
-	rough     bool       // an intermediate fit that only seeds the next: one start, few iterations
-	lmWork    *[]float64 // the LM engine's workspace, shared by the fits (one runs at a time)
+	rough     bool // an intermediate fit that only seeds the next: one start, few iterations
+	// holdSingle holds the azimuth (perpendicular to the traverse) and dip (0) of the
+	// lines on a single traverse: the fallback when fitting them did not determine them.
+	holdSingle bool
+	lmWork     *[]float64 // the LM engine's workspace, shared by the fits (one runs at a time)
 }
 
 // lmWorkPool recycles the LM engine's workspaces between calls of FitLines.
 var lmWorkPool = sync.Pool{New: func() any { return new([]float64) }}
 
+// holds returns which line angles new lines start with held, and at what values
+// (radians). On a single traverse a new line starts with its azimuth perpendicular to
+// the traverse and its dip 0, held; unless Settings hold them or the fallback
+// (holdSingle) does, release then frees them for the final polish (see fitK).
 func (f *fitter) holds() (holdAz, holdDip bool, az, dip float64) {
 	sv, s := f.sv, f.set
 	if s.Dip != nil {
@@ -141,6 +181,74 @@ func (f *fitter) holds() (holdAz, holdDip bool, az, dip float64) {
 		az = math.Atan2(sv.t1[0], sv.t1[1]) + math.Pi/2
 	}
 	return
+}
+
+// release frees the azimuth and dip of every line of a single-traverse fit that the
+// Settings do not hold and iterates from the fit with them held: the three-axis field
+// determines them, and starting from the held solution (perpendicular, level) keeps the
+// search in the basin of the crossing found. When nothing is to be freed, or the freed
+// fit fails, the held fit is returned.
+func (f *fitter) release(c *candidate) (*candidate, error) {
+	freeAz, freeDip := f.set.Azimuth == nil, f.set.Dip == nil
+	if !f.sv.single || f.holdSingle || (!freeAz && !freeDip) {
+		return c, nil
+	}
+	lines := append([]lineGeom(nil), c.sp.geom...)
+	c.sp.unpack(c.x)
+	for i := range lines {
+		l := &lines[i]
+		l.s, l.z = c.sp.geom[i].s, c.sp.geom[i].z
+		if l.holdAz && freeAz {
+			// Held perpendicular so far: free within singleAzimuthRange of it, so that
+			// a line cannot turn along the traverse, where its field no longer varies
+			// along it and trades off against the background.
+			l.holdAz, l.azLo, l.azHi = false, l.az-singleAzimuthRange, l.az+singleAzimuthRange
+		}
+		l.holdDip = l.holdDip && !freeDip
+	}
+	st := start{lines: lines, dips: append([]dipGeom(nil), c.sp.dips...)}
+	free, err := f.bestOf([]start{st}, true)
+	if err != nil {
+		return c, nil
+	}
+	free.iters += c.iters
+	return free, nil
+}
+
+// singleAzimuthRange bounds the azimuth fitted from a single traverse about the
+// traverse's perpendicular (60 degrees: lines crossing it at 30 degrees or more). A fit
+// that reaches the bound is treated as not determining the azimuth.
+const singleAzimuthRange = 60 * math.Pi / 180
+
+// singleAngleLimit is the largest one-sigma uncertainty (radians, 15 degrees) of an
+// azimuth or dip fitted from a single traverse that is reported as determined. Beyond
+// it, or when the covariance shows rank loss, the angles are held as for a two-axis
+// log (see FitLines): a linearised sigma that large does not describe the uncertainty.
+const singleAngleLimit = 15 * math.Pi / 180
+
+// singleAnglesUndetermined reports whether a single-traverse result fitted some line's
+// azimuth or dip without determining it: rank loss or a sigma beyond singleAngleLimit.
+// Lines whose current is not significant are judged by the others (their position is
+// not determined either, and the result already says so).
+func singleAnglesUndetermined(r *Result) (bool, string) {
+	lim := singleAngleLimit * 180 / math.Pi
+	for i, e := range r.Sources {
+		if e.Kind != "line" || !(math.Abs(e.Current) > 2*e.CurrentSigma) {
+			continue
+		}
+		for _, n := range e.Notes {
+			if n == "azimuth not resolved by the data" || n == "dip not resolved by the data" {
+				return true, fmt.Sprintf("line %d: %s", i+1, n)
+			}
+		}
+		if e.Identifiable.Azimuth && !(e.AzimuthSigma <= lim) {
+			return true, fmt.Sprintf("line %d: azimuth sigma %.3g deg", i+1, e.AzimuthSigma)
+		}
+		if e.Identifiable.Dip && !(e.DipSigma <= lim) {
+			return true, fmt.Sprintf("line %d: dip sigma %.3g deg", i+1, e.DipSigma)
+		}
+	}
+	return false, ""
 }
 
 // seedsFromData proposes single-line seeds from the anomaly in data rows d.
@@ -219,6 +327,11 @@ func (f *fitter) fitK(k int, prev *candidate) (*candidate, error) {
 	best, err := f.bestOf(starts, k == 1 && f.sv.single)
 	if err != nil {
 		return nil, wrapf(err, "fitting %d line(s)", k)
+	}
+	if !f.rough {
+		if best, err = f.release(best); err != nil {
+			return nil, err
+		}
 	}
 	for len(best.sp.dips) < f.set.Dipoles {
 		if best, err = f.addDipole(best); err != nil {
@@ -471,10 +584,27 @@ func (f *fitter) score(c *candidate) ModelScore {
 // guard rejects a fit with more lines that the data do not support: a line pinned at
 // a bound, a current not significantly different from zero (its position is then
 // undetermined), or two lines that coincide within their uncertainty.
+// phasorK is the number of sigmas an AC line's RMS current must exceed to be kept:
+// the same chance of keeping a line that carries nothing as the 3 sigma of a DC
+// current. A DC current is one normal value, and |Z| > 3 has probability 0.0027; an
+// AC current is a phasor, two normal values of equal sigma, whose modulus is then
+// Rayleigh distributed with P(|Z| > k) = exp(-k^2/2), so k = sqrt(-2 ln 0.0027) =
+// 3.44. Held at 3, a phasor fit keeps a spurious weak line four times as often
+// (exp(-4.5) = 1.1%): on a walked AC traverse such a line absorbed the unmodelled
+// change of amplitude within each window and pulled the cable's phase by 4 sigma.
+var phasorK = math.Sqrt(-2 * math.Log(math.Erfc(3/math.Sqrt2)))
+
 func (f *fitter) guard(c *candidate) string {
 	sum, err := f.summarise(c)
 	if err != nil {
 		return err.Error()
+	}
+	if f.sv.single {
+		// On a single traverse the lines' angles are fitted; a count whose lines they
+		// do not determine is not supported by the data.
+		if bad, why := singleAnglesUndetermined(&Result{Sources: sum.lines}); bad {
+			return "angles not determined by the traverse (" + why + ")"
+		}
 	}
 	for i, d := range c.sp.dips {
 		if d.pos[2] >= d.zHi-1e-9 {
@@ -500,8 +630,15 @@ func (f *fitter) guard(c *candidate) string {
 			}
 			continue
 		}
-		if !(math.Abs(e.Current) > 3*e.CurrentSigma) {
-			return fmt.Sprintf("line %d current %.3g A is within 3 sigma (%.3g A) of zero", i+1, e.Current, e.CurrentSigma)
+		if !e.Identifiable.Current {
+			return fmt.Sprintf("line %d current is not resolved by the data", i+1)
+		}
+		k := 3.0
+		if f.sv.nrhs == 2 {
+			k = phasorK
+		}
+		if !(math.Abs(e.Current) > k*e.CurrentSigma) {
+			return fmt.Sprintf("line %d current %.3g A is within %.3g sigma (%.3g A) of zero", i+1, e.Current, k, e.CurrentSigma)
 		}
 	}
 	for i := range c.sp.geom {

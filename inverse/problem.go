@@ -132,12 +132,15 @@ type Settings struct {
 	// Background selects the background terms; the zero value fits a uniform field.
 	Background BackgroundModel
 	// Azimuth, when set, holds every line at this azimuth (degrees clockwise from
-	// north). When nil the azimuth is fitted for areal surveys and held perpendicular
-	// to the traverse (and reported as not identifiable) for a single traverse.
+	// north). When nil the azimuth is fitted, for a single traverse too (the three-axis
+	// field determines it, see the package documentation; there it is seeded
+	// perpendicular to the traverse and kept within 60 degrees of that). Only when the
+	// fit does not determine it (rank loss, sigma above 15 degrees) is it held
+	// perpendicular to the traverse and reported as not identifiable.
 	Azimuth *float64
 	// Dip, when set, holds every line at this dip (degrees, positive when the line
-	// descends along its direction). When nil the dip is fitted for areal surveys and
-	// held at 0 for a single traverse.
+	// descends along its direction). When nil the dip is fitted, for a single traverse
+	// too (seeded at 0, and held at 0 with the azimuth when not determined).
 	Dip *float64
 	// Dipoles is the number of point dipoles (ferrous objects: a valve, a buried drum)
 	// fitted together with the lines, so that their fields are not mistaken for
@@ -301,8 +304,10 @@ type Result struct {
 	// height"; ReferenceZ is that height (m).
 	DepthReference string
 	ReferenceZ     float64
-	// SingleTraverse is true when the readings lie along one line, so that azimuth and
-	// dip were held.
+	// SingleTraverse is true when the readings lie along one line. Azimuth and dip are
+	// then fitted from the three-axis field like over an areal survey (see
+	// Identifiable), or held perpendicular and level when the traverse did not
+	// determine them, with a note in Notes saying why.
 	SingleTraverse bool
 	// Notes are cautions about the whole fit.
 	Notes []string

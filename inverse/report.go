@@ -175,13 +175,13 @@ func (f *fitter) summarise(c *candidate) (*summary, error) {
 		j := off + 2
 		if !g.holdAz {
 			e.AzimuthSigma = sigmaOf(l*nq + qAzimuth)
-			if unres[j] {
+			if unres[j] || g.atAzBound() {
 				id.Azimuth = false
 				e.Notes = append(e.Notes, "azimuth not resolved by the data")
 			}
 			j++
 		} else if f.sv.single && f.set.Azimuth == nil {
-			e.Notes = append(e.Notes, fmt.Sprintf("azimuth not identifiable from a single traverse: held perpendicular to it (%.1f deg)", e.Azimuth))
+			e.Notes = append(e.Notes, fmt.Sprintf("azimuth not determined by this traverse: held perpendicular to it (%.1f deg)", e.Azimuth))
 		} else {
 			e.Notes = append(e.Notes, fmt.Sprintf("azimuth held at %.1f deg", e.Azimuth))
 		}
@@ -192,7 +192,7 @@ func (f *fitter) summarise(c *candidate) (*summary, error) {
 				e.Notes = append(e.Notes, "dip not resolved by the data")
 			}
 		} else if f.sv.single && f.set.Dip == nil {
-			e.Notes = append(e.Notes, "dip not identifiable from a single traverse: held horizontal")
+			e.Notes = append(e.Notes, "dip not determined by this traverse: held horizontal")
 		} else {
 			e.Notes = append(e.Notes, fmt.Sprintf("dip held at %.1f deg", e.Dip))
 		}

@@ -93,7 +93,8 @@ func TestFitLinesSettings(t *testing.T) {
 }
 
 // TestSingleTraverseAnyDirection: a traverse running north-east across a line running
-// north-west; the azimuth is held perpendicular to the traverse and the crossing found.
+// north-west, perpendicular to it; the azimuth, fitted from the three-axis field, and the
+// crossing are found.
 func TestSingleTraverseAnyDirection(t *testing.T) {
 	var pts [][3]float64
 	for i := range 41 {
@@ -111,7 +112,7 @@ func TestSingleTraverseAnyDirection(t *testing.T) {
 	}
 	e := res.Sources[0]
 	// Dir oriented to azimuth 135 (south-east), so the current is -8 A along it.
-	if math.Abs(e.Azimuth-135) > 1e-9 || !relClose(e.Current, -8, 1e-7) || !relClose(e.Depth, 0.8, 1e-7) {
+	if math.Abs(e.Azimuth-135) > 1e-6 || !e.Identifiable.Azimuth || !relClose(e.Current, -8, 1e-7) || !relClose(e.Depth, 0.8, 1e-7) {
 		t.Errorf("azimuth %v current %v depth %v", e.Azimuth, e.Current, e.Depth)
 	}
 	// The line passes 0.2/sqrt2 m... check the point lies on the true line.

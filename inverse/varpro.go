@@ -19,6 +19,22 @@ type lineGeom struct {
 	s, z, az, dip      float64
 	holdAz, holdDip    bool
 	sLo, sHi, zLo, zHi float64 // bounds
+	// azLo, azHi bound a fitted azimuth when azHi > azLo (a single traverse: within
+	// singleAzimuthRange of its perpendicular); otherwise it is free.
+	azLo, azHi float64
+}
+
+// azBounds returns the bounds of a fitted azimuth.
+func (g *lineGeom) azBounds() (lo, hi float64) {
+	if g.azHi > g.azLo {
+		return g.azLo, g.azHi
+	}
+	return math.Inf(-1), math.Inf(1)
+}
+
+// atAzBound reports whether a fitted azimuth sits at its bound.
+func (g *lineGeom) atAzBound() bool {
+	return !g.holdAz && g.azHi > g.azLo && (g.az <= g.azLo+1e-9 || g.az >= g.azHi-1e-9)
 }
 
 func dirOf(az, dip float64) [3]float64 {
@@ -139,8 +155,9 @@ func (sp *separable) pack() (x, lo, hi []float64) {
 		hi = append(hi, g.sHi, g.zHi)
 		if !g.holdAz {
 			x = append(x, g.az)
-			lo = append(lo, math.Inf(-1))
-			hi = append(hi, math.Inf(1))
+			alo, ahi := g.azBounds()
+			lo = append(lo, alo)
+			hi = append(hi, ahi)
 		}
 		if !g.holdDip {
 			x = append(x, g.dip)
