@@ -18,9 +18,10 @@ import (
 // A buried steel object near a conductor (a drum, a valve, a pile) adds a
 // dipole field that an infinite-line fit absorbs as a biased current, a
 // spurious weak line or a poor fit; along the route it shows as a current
-// anomaly. For each group the route reports as a current anomaly or a poor
-// fit, Build searches for one point dipole beside the group's conductors
-// and marks the group as a magnetised object when
+// anomaly. For each group the route reports as a current anomaly, or as a
+// poor fit that stands out (see dipoleCandidates), Build searches for one
+// point dipole beside the group's conductors and marks the group as a
+// magnetised object when
 //
 //   - with the dipole the Bayesian information criterion is lower than
 //     the original fit's by more than dipoleBIC
@@ -48,8 +49,11 @@ import (
 // block coordinate descent on the joint fit. The criterion counts the
 // refitted conductors' parameters, the dipole's position and its moment.
 // The position's uncertainty comes from the curvature of chi-square about
-// the best position (C = 2 H^-1) with the conductors held, so it leaves out
-// the uncertainty of their geometry and is a lower bound.
+// the best position (C = 2 H^-1) over the dipole's position and the
+// conductors' geometry (their offsets, azimuths and dips; the strengths
+// solved at each point), with the residual variance scaled for the
+// smoothness of the residuals along the traverse (model error is not white
+// noise, see residualAR1).
 const (
 	weakShare     = 0.05
 	dipoleMargin  = 2.0 // m
@@ -95,9 +99,19 @@ func paramSigma(r *inverse.Result, name string) float64 {
 }
 
 // dipoleCandidates returns the keys of the groups r reports as current
-// anomalies or poor fits.
+// anomalies, and of the poor fits whose misfit is strong and localised
+// (see localMisfit) or whose current departs from both nearest sound
+// neighbours alike by more than dipoleAgreeK standard deviations, the
+// route's between-station scatter (route.Route.ModelScatter) counted in
+// each station's. A poor fit whose current agrees with its neighbours and
+// whose neighbours fit as poorly is a bend or a change of depth the
+// straight-line model misses, not an object; searching it would cost time
+// and find spurious objects. A strong, localised misfit is searched
+// whatever its current: the fit may have absorbed the object's field in a
+// weak extra line and kept the current.
 func dipoleCandidates(r *route.Route) map[string]bool {
 	c := map[string]bool{}
+	poor := map[string]bool{}
 	for _, f := range r.Findings {
 		switch f.Kind {
 		case route.KindCurrentAnomaly:
@@ -106,11 +120,65 @@ func dipoleCandidates(r *route.Route) map[string]bool {
 			}
 		case route.KindPoorFit:
 			if len(f.Keys) == 1 {
-				c[f.Keys[0]] = true
+				poor[f.Keys[0]] = true
 			}
 		}
 	}
+	tau2 := r.ModelScatter * r.ModelScatter
+	for k := range r.Stations {
+		p := &r.Stations[k]
+		if !poor[p.Key] || !p.OK || p.Dipole {
+			continue
+		}
+		if localMisfit(r, k) {
+			c[p.Key] = true
+			continue
+		}
+		cur, sig := neighbours(r, p.Key, poor)
+		if len(cur) != 2 {
+			continue
+		}
+		d0, d1 := math.Abs(p.Current)-cur[0], math.Abs(p.Current)-cur[1]
+		if (d0 > 0) != (d1 > 0) {
+			continue // between its neighbours: a trend or a step, not an object
+		}
+		dep := math.Abs(p.Current) - (cur[0]+cur[1])/2
+		v := p.CurrentSigma*p.CurrentSigma + tau2 + (sig[0]*sig[0]+sig[1]*sig[1]+2*tau2)/4
+		if math.Abs(dep) > dipoleAgreeK*math.Sqrt(v) {
+			c[p.Key] = true
+		}
+	}
 	return c
+}
+
+// localFactor is how many times the reduced chi-square of both
+// neighbouring stations a fit's must exceed for its misfit to count as
+// localised: a bend or a change of depth spoils the fits of a run of
+// stations alike, an object beside one traverse that traverse's alone.
+const localFactor = 10
+
+// localMisfit reports whether station k of r has a reduced chi-square over
+// localFactor times that of each of its neighbours in route order (a
+// station at an end has one).
+func localMisfit(r *route.Route, k int) bool {
+	red := func(p *route.Placed) float64 {
+		if p.DOF <= 0 {
+			return math.NaN()
+		}
+		return p.Chi2 / float64(p.DOF)
+	}
+	x := red(&r.Stations[k])
+	n := 0
+	for _, j := range []int{k - 1, k + 1} {
+		if j < 0 || j >= len(r.Stations) {
+			continue
+		}
+		if !(x > localFactor*red(&r.Stations[j])) {
+			return false
+		}
+		n++
+	}
+	return n > 0
 }
 
 // neighbours returns the currents and sigmas of the nearest usable
@@ -180,6 +248,9 @@ func checkDipoles(fits []Fit, r *route.Route) bool {
 		if len(cur) == 2 {
 			v += (cur[0] - cur[1]) * (cur[0] - cur[1]) / 4
 		}
+		// The route's between-station scatter, in the refitted current
+		// and in the neighbours' mean.
+		v += r.ModelScatter * r.ModelScatter * (1 + 1/float64(len(cur)))
 		if math.Abs(math.Abs(ds.current)-mean) > dipoleAgreeK*math.Hypot(ds.currentSigma, math.Sqrt(v)) {
 			continue
 		}
@@ -450,7 +521,11 @@ func searchDipole(f *Fit) *dipoleSearch {
 		s2 = p.Sigma * p.Sigma
 	}
 	ds := &dipoleSearch{gain: bic(p, res) - (base + k*math.Log(n))}
-	sig := curvature(loc, pos, rss, s2)
+	// Model error left in the readings (a bend of the conductors some
+	// metres away, which the infinite lines miss) is smooth along the
+	// traverse, not white: scale the variance by the AR(1) factor of the
+	// residuals (see residualAR1).
+	sig := curvature(loc, pos, rss, s2*ar1Factor(residualAR1(r)))
 	zref := res.ReferenceZ
 	if res.DepthReference != "ReferenceZ" {
 		var m float64
@@ -526,33 +601,78 @@ func searchDipole(f *Fit) *dipoleSearch {
 
 // curvature returns the one-sigma position uncertainty from the curvature
 // of chi-square = RSS/s2 about pos (C = 2 H^-1, central differences over
-// 5 cm); zeros when the curvature is not positive definite.
+// 5 cm for the dipole, 1 cm and 2 mrad for the lines), the lines' geometry
+// free: the marginal sigmas of the position. Zeros when the curvature is
+// not positive definite.
 func curvature(loc *dipoleLocator, pos [3]float64, rss, s2 float64) [3]float64 {
-	const h = 0.05
-	chi := func(dx [3]float64) float64 {
-		q := pos
-		for a := range 3 {
-			q[a] += dx[a]
+	// Parameters: the dipole's position (3), then for each line its shift
+	// across itself horizontally and vertically and small turns of its
+	// azimuth and dip (4 each), about the lines found.
+	nl := len(loc.srcs) - 1
+	lines := make([]inverse.Line, nl)
+	for i := range lines {
+		l, ok := loc.srcs[i].(inverse.Line)
+		if !ok {
+			return [3]float64{}
 		}
-		v := loc.rss(q)
-		return v / s2
+		lines[i] = l
 	}
-	c0 := rss / s2
-	H := mat.NewSymDense(3, nil)
-	for a := range 3 {
-		for b := a; b < 3; b++ {
+	defer func() {
+		for i := range lines {
+			loc.srcs[i] = lines[i]
+		}
+	}()
+	np := 3 + 4*nl
+	step := make([]float64, np)
+	for a := range np {
+		switch {
+		case a < 3:
+			step[a] = 0.05 // m
+		case (a-3)%4 < 2:
+			step[a] = 0.01 // m
+		default:
+			step[a] = 0.002 // rad
+		}
+	}
+	chi := func(x []float64) float64 {
+		for i, l := range lines {
+			d := l.Dir
+			n := math.Hypot(d[0], d[1])
+			if n == 0 {
+				return math.Inf(1)
+			}
+			across := [3]float64{d[1] / n, -d[0] / n, 0}
+			q := x[3+4*i:]
+			var pt, dir [3]float64
+			c, s := math.Cos(q[2]), math.Sin(q[2])
+			dir = [3]float64{c*d[0] + s*d[1], -s*d[0] + c*d[1], d[2] + q[3]*n}
+			for k := range 3 {
+				pt[k] = l.Point[k] + q[0]*across[k]
+			}
+			pt[2] += q[1]
+			loc.srcs[i] = inverse.Line{Point: pt, Dir: dir}
+		}
+		return loc.rss([3]float64{pos[0] + x[0], pos[1] + x[1], pos[2] + x[2]}) / s2
+	}
+	x := make([]float64, np)
+	c0 := chi(x)
+	if !(c0 < math.Inf(1)) {
+		c0 = rss / s2
+	}
+	at := func(a, b int, sa, sb float64) float64 {
+		clear(x)
+		x[a] += sa * step[a]
+		x[b] += sb * step[b]
+		return chi(x)
+	}
+	H := mat.NewSymDense(np, nil)
+	for a := range np {
+		for b := a; b < np; b++ {
 			var v float64
 			if a == b {
-				var e, m [3]float64
-				e[a], m[a] = h, -h
-				v = (chi(e) - 2*c0 + chi(m)) / (h * h)
+				v = (at(a, a, 0.5, 0.5) - 2*c0 + at(a, a, -0.5, -0.5)) / (step[a] * step[a])
 			} else {
-				var pp, pm, mp, mm [3]float64
-				pp[a], pp[b] = h, h
-				pm[a], pm[b] = h, -h
-				mp[a], mp[b] = -h, h
-				mm[a], mm[b] = -h, -h
-				v = (chi(pp) - chi(pm) - chi(mp) + chi(mm)) / (4 * h * h)
+				v = (at(a, b, 1, 1) - at(a, b, 1, -1) - at(a, b, -1, 1) + at(a, b, -1, -1)) / (4 * step[a] * step[b])
 			}
 			H.SetSym(a, b, v)
 		}
@@ -580,4 +700,52 @@ func offLine(s *inverse.SourceEstimate, p [3]float64) float64 {
 		return math.Hypot(p[0]-s.Point[0], p[1]-s.Point[1])
 	}
 	return math.Abs((p[0]-s.Point[0])*d[1]-(p[1]-s.Point[1])*d[0]) / h
+}
+
+// residualAR1 returns the lag-1 autocorrelation of r's residuals in
+// reading order (the order of the traverse), pooled over the axes and, for
+// AC, the in-phase and quadrature parts; 0 when there are too few.
+func residualAR1(r *inverse.Result) float64 {
+	var series [][]float64
+	for a := range 3 {
+		if r.ResidualPhasors != nil {
+			re, im := make([]float64, len(r.ResidualPhasors)), make([]float64, len(r.ResidualPhasors))
+			for i, e := range r.ResidualPhasors {
+				re[i], im[i] = real(e[a]), imag(e[a])
+			}
+			series = append(series, re, im)
+			continue
+		}
+		x := make([]float64, len(r.Residuals))
+		for i, e := range r.Residuals {
+			x[i] = e[a]
+		}
+		series = append(series, x)
+	}
+	var num, den float64
+	for _, x := range series {
+		for i := range x {
+			den += x[i] * x[i]
+			if i > 0 {
+				num += x[i] * x[i-1]
+			}
+		}
+	}
+	if !(den > 0) {
+		return 0
+	}
+	return num / den
+}
+
+// ar1Factor is the factor by which residuals with lag-1 autocorrelation
+// rho inflate the variance of a fitted parameter against white residuals
+// of the same variance, (1 + rho) / (1 - rho) (the effective sample size of
+// an AR(1) series, n (1 - rho) / (1 + rho); from memory, common practice in
+// time-series analysis); 1 for rho <= 0, and at most 100 (rho near 1: the
+// residuals are one slow swell and the factor would say nothing more).
+func ar1Factor(rho float64) float64 {
+	if !(rho > 0) {
+		return 1
+	}
+	return math.Min((1+rho)/(1-rho), 100)
 }

@@ -54,7 +54,15 @@
 //
 // where s_g^2 = (pi/2) mean(s_k^2/dx_k^2)/m is the large-sample variance of
 // the median of the m neighbouring gradients (the median of m normal values
-// has variance about pi sigma^2 / (2 m)).
+// has variance about pi sigma^2 / (2 m)), or the same from the gradients'
+// own spread (1.4826 MAD) when they scatter more, and s^2 = s1^2 + s2^2 +
+// 2 tau^2: tau (Route.ModelScatter) is the between-station scatter beyond
+// the fits' own sigmas, the error of the straight-line model near bends,
+// estimated robustly from the detrended differences of the whole route
+// (scatter.go) and added to every station's variance, in the anomaly test
+// and the sizes reported too. A run whose levels either side (below) do
+// not differ by k sigma is not reported: one or two stations off, not
+// current leaving.
 //
 // Steps are found one at a time, the most significant first, and each one
 // found is left out of the trend of the others, so that a step is never taken

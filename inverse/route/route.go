@@ -30,6 +30,13 @@ type Route struct {
 	// Findings are sorted by chainage, the most pressing first at equal
 	// chainage.
 	Findings []Finding
+	// ModelScatter is the between-station scatter of current beyond the
+	// stations' own sigmas (A, one standard deviation; zero when there is
+	// none or too few stations to tell): the error of the straight-line
+	// model (bends, a second conductor the model lacks) that no single fit
+	// sees. The step and anomaly tests add it to every station's sigma;
+	// see scatter.go.
+	ModelScatter float64
 }
 
 // Build orders stations along the route they trace, measures chainage and
@@ -57,7 +64,8 @@ func Build(stations []Station, set *Settings) (*Route, error) {
 	r.Length = r.Stations[len(r.Stations)-1].Chainage
 	orient(r.Stations)
 
-	r.Findings = append(r.Findings, steps(r.Stations, set)...)
+	r.ModelScatter = modelScatter(usable(r.Stations), set)
+	r.Findings = append(r.Findings, steps(r.Stations, set, r.ModelScatter)...)
 	r.Findings = append(r.Findings, cover(r.Stations, set)...)
 	r.Findings = append(r.Findings, quality(r.Stations, set)...)
 	sort.SliceStable(r.Findings, func(i, j int) bool {

@@ -12,15 +12,32 @@ import (
 // back up, or up and back down) is reported as a current anomaly and left
 // out, and the search repeats without it. Adjacent steps of the same sign
 // are reported as one step spread over the stations between them.
-func steps(ps []Placed, set *Settings) []Finding {
-	var u []*Placed
-	for i := range ps {
-		if ps[i].usable() {
-			u = append(u, &ps[i])
+//
+// Every station's sigma is first widened by tau, the between-station model
+// error (see scatter.go), for the tests and for the sizes reported.
+func steps(ps []Placed, set *Settings, tau float64) (out []Finding) {
+	u := usable(ps)
+	var orig map[*Placed]*Placed // the stations' own, by their widened copies
+	if tau > 0 {
+		wide := make([]Placed, len(u))
+		orig = make(map[*Placed]*Placed, len(u))
+		for i, p := range u {
+			wide[i] = *p
+			wide[i].CurrentSigma = math.Hypot(p.CurrentSigma, tau)
+			orig[&wide[i]] = p
+			u[i] = &wide[i]
 		}
 	}
 	k := set.stepK()
-	var out []Finding
+	defer func() {
+		if tau <= 0 {
+			return
+		}
+		for i := range out {
+			out[i].Message += fmt.Sprintf("; sigmas include a between-station scatter of %.2g A beyond the fits' own", tau)
+			out[i].Values = append(out[i].Values, Value{Name: "between-station scatter", Value: tau, Unit: "A"})
+		}
+	}()
 	for {
 		if len(u) < 2 {
 			return out
@@ -44,7 +61,7 @@ func steps(ps []Placed, set *Settings) []Finding {
 			}
 		}
 		if spike < 0 {
-			return append(out, stepFindings(u, d, set)...)
+			return append(out, stepFindings(u, own(u, orig), d, set, tau)...)
 		}
 		// A station already reported as a poor fit (a bend, a second
 		// conductor the model lacks) is left out without a second finding:
@@ -98,7 +115,13 @@ func detect(u []*Placed, set *Settings) *detection {
 
 // stepFindings turns runs of same-sign step intervals into findings, each
 // sized from the plateaus either side of it (see plateau.go).
-func stepFindings(u []*Placed, d *detection, set *Settings) []Finding {
+//
+// The levels are fitted to the stations' own sigmas (uo; the plateau fit
+// estimates its own shared scatter) and then each widened by tau, the
+// route's between-station model error: a bend spans several traverses, so
+// its error is shared by neighbouring stations and does not average away
+// over a plateau.
+func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64) []Finding {
 	m := len(d.isStep)
 	var runs [][2]int // station indices of each run's bracketing stations
 	for j := 0; j < m; j++ {
@@ -129,10 +152,21 @@ func stepFindings(u []*Placed, d *detection, set *Settings) []Finding {
 		if r+1 < len(runs) {
 			hi = runs[r+1][0]
 		}
-		pl := plateau(u, set, ia, ib, lo, hi)
+		pl := plateau(uo, set, ia, ib, lo, hi)
+		if tau > 0 {
+			pl.sigmaBefore, pl.sigmaAfter = math.Hypot(pl.sigmaBefore, tau), math.Hypot(pl.sigmaAfter, tau)
+			pl.sigma = math.Hypot(pl.sigma, math.Sqrt2*tau)
+		}
 		raw := b.Current - a.Current
 		rawSigma := math.Hypot(a.CurrentSigma, b.CurrentSigma)
 		size, sigma := pl.step, pl.sigma
+		if set.trendWindow() > 0 && !(math.Abs(size) > set.stepK()*sigma) {
+			// The interval jumps but the levels either side agree: a local
+			// disturbance of one or two stations (a bend the straight-line
+			// model misses), not current leaving or joining. (With the trend
+			// disabled every raw difference is reported, as asked.)
+			continue
+		}
 		verb, why := "falls", "current leaving the conductor"
 		if math.Abs(pl.after) > math.Abs(pl.before) {
 			verb, why = "rises", "current joining the conductor (a bond, a tee or another source)"
@@ -242,6 +276,22 @@ func trend(dI, dx, s []float64, skip []bool, j, w int) (g, sigma float64) {
 	// Variance of the median of n normal values: about (pi/2) sigma^2 / n
 	// for large n, and less for small n, so this errs on the safe side.
 	sigma = math.Sqrt(math.Pi / 2 * (v / float64(n)) / float64(n))
+	// When the gradients scatter more than their sigmas say (model error
+	// beyond the between-station scatter estimated for the whole route),
+	// their own spread sets the median's uncertainty: 1.4826 MAD is the
+	// normal scale, and sqrt(pi/2)/sqrt(n) carries it to the median.
+	if n >= 3 {
+		dev := make([]float64, n)
+		for i, x := range gs {
+			dev[i] = math.Abs(x - g)
+		}
+		sort.Float64s(dev)
+		mad := dev[n/2]
+		if n%2 == 0 {
+			mad = (dev[n/2-1] + dev[n/2]) / 2
+		}
+		sigma = math.Max(sigma, 1.4826*mad*math.Sqrt(math.Pi/2/float64(n)))
+	}
 	return g, sigma
 }
 
@@ -268,4 +318,16 @@ func pointAt(ps []*Placed, c float64) [3]float64 {
 
 func mid(a, b [3]float64) [3]float64 {
 	return [3]float64{(a[0] + b[0]) / 2, (a[1] + b[1]) / 2, (a[2] + b[2]) / 2}
+}
+
+// own maps widened stations back to the caller's (identity when orig is nil).
+func own(u []*Placed, orig map[*Placed]*Placed) []*Placed {
+	if orig == nil {
+		return u
+	}
+	o := make([]*Placed, len(u))
+	for i, p := range u {
+		o[i] = orig[p]
+	}
+	return o
 }
