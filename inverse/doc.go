@@ -109,8 +109,9 @@
 //
 // # Levenberg-Marquardt
 //
-// The optimiser is Levenberg-Marquardt with scaled trust-region steps (More, Lecture
-// Notes in Mathematics 630, 105-116, 1978): at each iteration the column-scaled Jacobian
+// The optimiser is Levenberg-Marquardt with scaled trust-region steps (J. J. More,
+// "The Levenberg-Marquardt algorithm: implementation and theory", Numerical Analysis,
+// Springer LNM 630, 105-116, 1978): at each iteration the column-scaled Jacobian
 // J D^-1 is factored by QR (never J^T J); the step p minimises ||J p + r|| subject to
 // ||D p|| <= Delta, found on the small triangular factor through its singular value
 // decomposition and a safeguarded Newton iteration for the Levenberg parameter. The

@@ -75,7 +75,7 @@ const fnoise = 1e-12
 var errLMStart = errors.New("inverse: the model cannot be evaluated at the starting point")
 
 // levmar minimises ||r(x)||^2 by Levenberg-Marquardt with scaled trust-region steps
-// (More, Lecture Notes in Mathematics 630, 105-116, 1978). Each iteration factors the
+// (J. J. More, Numerical Analysis, Springer LNM 630, 105-116, 1978). Each iteration factors the
 // column-scaled Jacobian by Householder QR (never forming J^T J); the trust-region
 // subproblem is then solved exactly on the small triangular factor through its singular
 // value decomposition, which also gives the minimum-norm step when J is rank deficient.
