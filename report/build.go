@@ -240,6 +240,7 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int) (Group, route
 		}
 	}
 	st.RMS = res.RMS
+	st.Signal = signalRMS(res)
 	if refSigma > 0 && res.Sigma > 0 {
 		// Chi-square against the yardstick noise, so that a group fitting
 		// much worse than the others stands out.
@@ -354,4 +355,31 @@ func centroid(pts [][3]float64) [3]float64 {
 		c = [3]float64{c[0] / n, c[1] / n, c[2] / n}
 	}
 	return c
+}
+
+// signalRMS is the root-mean-square per axis reading of the fitted
+// sources' field (the fitted field less the uniform background), nT, in
+// the same measure as inverse.Result.RMS; zero when the result carries no
+// predictions.
+func signalRMS(res *inverse.Result) float64 {
+	var ss float64
+	n := 0
+	for _, p := range res.Predicted {
+		for j := range 3 {
+			d := p[j] - res.Background[j]
+			ss += d * d
+		}
+		n++
+	}
+	for _, p := range res.PredictedPhasors {
+		for j := range 3 {
+			d := p[j] - res.BackgroundPhasor[j]
+			ss += real(d)*real(d) + imag(d)*imag(d)
+		}
+		n++
+	}
+	if n == 0 {
+		return 0
+	}
+	return math.Sqrt(ss / float64(3*n))
 }

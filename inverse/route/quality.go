@@ -17,14 +17,17 @@ func quality(ps []Placed, set *Settings) []Finding {
 		}
 		var why []string
 		var vals []Value
+		minor := p.OK && p.Problem == "" && p.Signal > 0 && p.RMS <= set.minorMisfit()*p.Signal
 		if !p.OK {
 			why = append(why, "the fit failed")
 		}
 		if p.Problem != "" {
 			why = append(why, p.Problem)
 		}
+		chi := 0.0
 		if p.DOF > 0 && maxChi > 0 && p.Chi2 > 0 {
 			if r := p.Chi2 / float64(p.DOF); r > maxChi {
+				chi = r
 				why = append(why, fmt.Sprintf("chi-square per degree of freedom is %.3g (limit %.3g): the model or the noise level does not match the readings", r, maxChi))
 				vals = append(vals, Value{Name: "reduced chi-square", Value: r, Unit: ""})
 			}
@@ -34,6 +37,22 @@ func quality(ps []Placed, set *Settings) []Finding {
 		}
 		if p.RMS > 0 {
 			vals = append(vals, Value{Name: "rms residual", Value: p.RMS, Unit: "nT"})
+		}
+		if p.Signal > 0 {
+			vals = append(vals, Value{Name: "rms signal", Value: p.Signal, Unit: "nT"})
+		}
+		if minor && chi > 0 {
+			out = append(out, Finding{
+				Kind:     KindPoorFit,
+				Severity: SeverityInfo,
+				From:     p.Chainage, To: p.Chainage,
+				Position: p.Point,
+				Keys:     []string{p.Key},
+				Message: fmt.Sprintf("fit at %s misses %.3g nT RMS of a %.0f nT signal (%.2g%%), more than the noise allows (chi-square per degree of freedom %.3g): the straight-line model is only approximate here (a bend, a change of depth or a nearby object); the estimates hold to about that fraction, but their sigmas may be optimistic",
+					at(p, len(ps) == 1), p.RMS, p.Signal, 100*p.RMS/p.Signal, chi),
+				Values: vals,
+			})
+			continue
 		}
 		use := "used with care"
 		if !p.usable() {

@@ -397,6 +397,10 @@ func TestQualityFindings(t *testing.T) {
 		{"ambiguous", func(s *Station) { s.Problem = "azimuth unidentifiable" }, []Kind{KindPoorFit}, "used with care"},
 		{"high chi2", func(s *Station) { s.Chi2, s.DOF = 500, 50 }, []Kind{KindPoorFit}, "chi-square per degree of freedom is 10"},
 		{"chi2 fine", func(s *Station) { s.Chi2, s.DOF = 55, 50 }, nil, ""},
+		// A misfit far above the noise but 0.5% of the signal is information (a bend
+		// the straight line cannot follow); at 5% of the signal it is a caution.
+		{"high chi2, minor misfit", func(s *Station) { s.Chi2, s.DOF, s.RMS, s.Signal = 500, 50, 5, 1000 }, []Kind{KindPoorFit}, "misses 5 nT RMS of a 1000 nT signal (0.5%)"},
+		{"high chi2, large misfit", func(s *Station) { s.Chi2, s.DOF, s.RMS, s.Signal = 500, 50, 50, 1000 }, []Kind{KindPoorFit}, "used with care"},
 		{"dipole", func(s *Station) { s.Dipole = true }, []Kind{KindDipole}, "magnetised object"},
 	}
 	for _, tc := range tests {
@@ -410,6 +414,12 @@ func TestQualityFindings(t *testing.T) {
 			var got []Kind
 			for _, f := range r.Findings {
 				got = append(got, f.Kind)
+				if f.Kind == KindPoorFit {
+					minor := strings.Contains(tc.name, "minor")
+					if want := map[bool]Severity{true: SeverityInfo, false: SeverityCaution}[minor]; f.Severity != want {
+						t.Errorf("severity %v, want %v", f.Severity, want)
+					}
+				}
 				if tc.contains != "" && !strings.Contains(f.Message, tc.contains) {
 					t.Errorf("message %q lacks %q", f.Message, tc.contains)
 				}

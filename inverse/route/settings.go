@@ -30,6 +30,20 @@ type Settings struct {
 	// MaxReducedChi2 flags stations whose Chi2/DOF exceeds it. Zero means
 	// 4; a negative value disables the check.
 	MaxReducedChi2 float64
+	// MinorMisfit is the largest RMS residual, as a fraction of the
+	// station's Signal, at which a fit that fails MaxReducedChi2 is still
+	// reported as information rather than a caution: the straight-line
+	// model is only approximate there (a bend, a change of depth), but the
+	// estimates hold to about that fraction. Zero means 0.01; a negative
+	// value makes every such fit a caution.
+	MinorMisfit float64
+}
+
+func (s *Settings) minorMisfit() float64 {
+	if s == nil || s.MinorMisfit == 0 {
+		return 0.01
+	}
+	return s.MinorMisfit
 }
 
 func (s *Settings) stepK() float64 {

@@ -26,6 +26,11 @@ type Station struct {
 	Depth, DepthSigma float64
 	// RMS is the fit's root-mean-square residual, nT.
 	RMS float64
+	// Signal is the root-mean-square of the fitted sources' field over the
+	// station's readings (the fitted field less the background), nT; zero
+	// when unknown. It grades a poor fit: a misfit that is large against the
+	// noise but small against the signal is reported as information.
+	Signal float64
 	// Chi2 and DOF are the fit's chi-square and degrees of freedom; when
 	// DOF > 0 and Settings.MaxReducedChi2 > 0 a large Chi2/DOF is reported
 	// as a poor fit. Leave them zero when the noise was estimated from the
