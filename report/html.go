@@ -387,7 +387,7 @@ func (v *view) summarise() {
 		}
 	}
 	if len(curSig) > 0 {
-		v.HowSure = fmt.Sprintf("Typical uncertainty (one standard deviation, median over the fits): current ± %s A (%.1f %%), depth ± %s m. Plots show ± two standard deviations.",
+		v.HowSure = fmt.Sprintf("Typical uncertainty (one standard deviation, median over the fits): current ± %s A (%.2g %%), depth ± %s m. Plots show ± two standard deviations.",
 			num(median(curSig)), 100*median(curRel), num(median(depSig)))
 	}
 	if ok < len(d.Groups) {
