@@ -4,6 +4,8 @@ import (
 	"math"
 	"math/rand/v2"
 	"testing"
+
+	"gonum.org/v1/gonum/mat"
 )
 
 // TestFullRCovariance checks the covariance assembled from the variable projection's
@@ -59,33 +61,42 @@ func TestFullRCovariance(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			want, wantUnres, err := covariance(J)
-			if err != nil {
-				t.Fatal(err)
-			}
-			r, n, perm, err := sp.fullR(x)
-			if err != nil {
-				t.Fatal(err)
-			}
-			got, gotUnres, err := covarianceFromR(r, n, perm)
-			if err != nil {
-				t.Fatal(err)
-			}
-			if wn, _ := want.Dims(); wn != n {
-				t.Fatalf("%d parameters, want %d", n, wn)
-			}
-			for i := range n {
-				if gotUnres[i] != wantUnres[i] {
-					t.Errorf("parameter %d: unresolved %v, want %v", i, gotUnres[i], wantUnres[i])
-				}
-				for j := range n {
-					scale := math.Sqrt(want.At(i, i) * want.At(j, j))
-					if d := math.Abs(got.At(i, j) - want.At(i, j)); d > tol*scale {
-						t.Fatalf("cov[%d][%d] = %g, from the full Jacobian %g", i, j, got.At(i, j), want.At(i, j))
-					}
-				}
-			}
+			checkCovarianceFromR(t, sp, x, J, tol)
 		})
+	}
+}
+
+// checkCovarianceFromR checks that the covariance assembled from the variable
+// projection's triangular factor (fullR) equals the one computed from the full
+// Jacobian J at x, entry by entry to tol relative to sqrt(C_ii C_jj), with the same
+// unresolved parameters.
+func checkCovarianceFromR(t *testing.T, sp *separable, x []float64, J *mat.Dense, tol float64) {
+	t.Helper()
+	want, wantUnres, err := covariance(J)
+	if err != nil {
+		t.Fatal(err)
+	}
+	r, n, perm, err := sp.fullR(x)
+	if err != nil {
+		t.Fatal(err)
+	}
+	got, gotUnres, err := covarianceFromR(r, n, perm)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if wn, _ := want.Dims(); wn != n {
+		t.Fatalf("%d parameters, want %d", n, wn)
+	}
+	for i := range n {
+		if gotUnres[i] != wantUnres[i] {
+			t.Errorf("parameter %d: unresolved %v, want %v", i, gotUnres[i], wantUnres[i])
+		}
+		for j := range n {
+			scale := math.Sqrt(want.At(i, i) * want.At(j, j))
+			if d := math.Abs(got.At(i, j) - want.At(i, j)); d > tol*scale {
+				t.Fatalf("cov[%d][%d] = %g, from the full Jacobian %g", i, j, got.At(i, j), want.At(i, j))
+			}
+		}
 	}
 }
 

@@ -219,26 +219,7 @@ func TestPathAverageJacobian(t *testing.T) {
 				}
 			}
 			// Covariance from the projection's factors equals that of the full J.
-			want, _, err := covariance(J)
-			if err != nil {
-				t.Fatal(err)
-			}
-			r, n, perm, err := sp.fullR(x)
-			if err != nil {
-				t.Fatal(err)
-			}
-			got, _, err := covarianceFromR(r, n, perm)
-			if err != nil {
-				t.Fatal(err)
-			}
-			for i := range n {
-				for j := range n {
-					s := math.Sqrt(want.At(i, i) * want.At(j, j))
-					if d := math.Abs(got.At(i, j) - want.At(i, j)); d > 1e-9*s {
-						t.Fatalf("cov[%d][%d] = %g, from the full Jacobian %g", i, j, got.At(i, j), want.At(i, j))
-					}
-				}
-			}
+			checkCovarianceFromR(t, sp, x, J, 1e-9)
 		})
 	}
 }

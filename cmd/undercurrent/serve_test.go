@@ -227,14 +227,7 @@ func TestServeSurvivesSIGKILL(t *testing.T) {
 	if testing.Short() {
 		t.Skip("starts a broker and three processes")
 	}
-	dir := t.TempDir()
-	srv, err := broker.StartServer(broker.ServerConfig{StoreDir: filepath.Join(dir, "store"), MQTTPort: -1})
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer srv.Shutdown()
-	site := filepath.Join(dir, "site.toml")
-	os.WriteFile(site, []byte(simSite), 0o644)
+	dir, srv, site := startSimBroker(t)
 	const seconds = 20.0
 	logPath := filepath.Join(dir, "fenwick-fixed.csv")
 	means := writeSimLog(t, logPath, seconds)
@@ -478,14 +471,7 @@ func TestReplayAgreesWithLocate(t *testing.T) {
 	if testing.Short() {
 		t.Skip("runs serve, replay and locate")
 	}
-	dir := t.TempDir()
-	srv, err := broker.StartServer(broker.ServerConfig{StoreDir: filepath.Join(dir, "store"), MQTTPort: -1})
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer srv.Shutdown()
-	site := filepath.Join(dir, "site.toml")
-	os.WriteFile(site, []byte(simSite), 0o644)
+	dir, srv, site := startSimBroker(t)
 	const seconds = 5.0
 	logPath := filepath.Join(dir, "fenwick-fixed.csv")
 	writeSimLogAs(t, logPath, seconds, true)
@@ -558,4 +544,22 @@ func TestReplayAgreesWithLocate(t *testing.T) {
 			t.Errorf("window %s: serve %.4f +- %.2g A, locate %.4f +- %.2g A", key, c.Current, c.CurrentSigma, l[0], l[1])
 		}
 	}
+}
+
+// startSimBroker starts an embedded broker (MQTT off) with its store in a
+// temporary directory, shut down when the test ends, and writes simSite
+// beside it. It returns the directory, the broker and the site file.
+func startSimBroker(t *testing.T) (dir string, srv *broker.Server, site string) {
+	t.Helper()
+	dir = t.TempDir()
+	srv, err := broker.StartServer(broker.ServerConfig{StoreDir: filepath.Join(dir, "store"), MQTTPort: -1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Cleanup(srv.Shutdown)
+	site = filepath.Join(dir, "site.toml")
+	if err := os.WriteFile(site, []byte(simSite), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return dir, srv, site
 }

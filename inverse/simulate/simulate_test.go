@@ -585,8 +585,12 @@ func TestScenarioFilesParse(t *testing.T) {
 	}
 }
 
-func BenchmarkSimulateDemo(b *testing.B) {
-	sc, err := Load(demoPath)
+func BenchmarkSimulateDemo(b *testing.B) { benchSimulate(b, demoPath) }
+
+// benchSimulate simulates the scenario at path once per iteration and
+// reports the readings it makes.
+func benchSimulate(b *testing.B, path string) {
+	sc, err := Load(path)
 	if err != nil {
 		b.Fatal(err)
 	}

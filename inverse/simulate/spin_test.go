@@ -223,15 +223,5 @@ margin_s = 10
 // BenchmarkSimulateSpin: a four-minute spin at 10 Hz, the Kestrel Moor
 // calibration log.
 func BenchmarkSimulateSpin(b *testing.B) {
-	sc, err := Load("../../testdata/scenarios/kestrel-moor-spin.toml")
-	if err != nil {
-		b.Fatal(err)
-	}
-	b.ReportAllocs()
-	for b.Loop() {
-		if _, err := Simulate(sc); err != nil {
-			b.Fatal(err)
-		}
-	}
-	b.ReportMetric(float64(sc.Rows()), "readings/op")
+	benchSimulate(b, "../../testdata/scenarios/kestrel-moor-spin.toml")
 }
