@@ -4,6 +4,7 @@ import (
 	"errors"
 	"math"
 
+	"gonum.org/v1/gonum/floats"
 	"gonum.org/v1/gonum/mat"
 )
 
@@ -198,9 +199,7 @@ func levmar(p *lmProblem, x0 []float64, set lmSettings) (*lmResult, error) {
 		a := aug[:m*(nf+1)]
 		for k, j := range free {
 			col, dj := a[k*m:(k+1)*m], 1/diag[j]
-			for i, v := range jc[j*m : (j+1)*m] {
-				col[i] = v * dj
-			}
+			floats.ScaleTo(col, dj, jc[j*m:(j+1)*m])
 		}
 		copy(a[nf*m:], r)
 		houseQR(a, m, nf+1, tau)
@@ -286,9 +285,7 @@ func levmar(p *lmProblem, x0 []float64, set lmSettings) (*lmResult, error) {
 				if sj == 0 {
 					continue
 				}
-				for i, v := range jc[j*m : (j+1)*m] {
-					jp[i] += v * sj
-				}
+				floats.AddScaled(jp, sj, jc[j*m:(j+1)*m])
 			}
 			pred := rss - sumSq(jp)
 			var rssT float64
@@ -430,27 +427,13 @@ func project(x, lower, upper []float64) {
 	}
 }
 
-// dot2 returns a.b with two accumulators; len(b) >= len(a).
+// dot2 returns a.b; len(b) >= len(a).
 func dot2(a, b []float64) float64 {
-	b = b[:len(a)]
-	var s0, s1 float64
-	i := 0
-	for ; i+1 < len(a); i += 2 {
-		s0 += a[i] * b[i]
-		s1 += a[i+1] * b[i+1]
-	}
-	if i < len(a) {
-		s0 += a[i] * b[i]
-	}
-	return s0 + s1
+	return floats.Dot(a, b[:len(a)])
 }
 
 func sumSq(v []float64) float64 {
-	var s float64
-	for _, x := range v {
-		s += x * x
-	}
-	return s
+	return floats.Dot(v, v)
 }
 
 func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
