@@ -354,6 +354,7 @@ func (f *fitter) bestOf(starts []start, quick bool) (*candidate, error) {
 		sp  *separable
 		x0  []float64
 		rss float64
+		st  start
 	}
 	var rs []ranked
 	var firstErr error
@@ -361,9 +362,15 @@ func (f *fitter) bestOf(starts []start, quick bool) (*candidate, error) {
 	// from start to start); the few that are polished evaluate again with their own.
 	var prev *separable
 	var r []float64
+	sub := f.sv.screening()
 	for _, st := range starts {
-		sp := newSeparable(f.sv.pts, f.sv.y, f.sv.nrhs, f.set.Background, f.sv.centroid, st.lines, st.dips)
-		sp.ptsLo, sp.ptsHi = f.sv.lo, f.sv.hi
+		geom, dips := st.lines, st.dips
+		if sub != f.sv {
+			// The full-data separable of a polished start gets its own geometry.
+			geom, dips = append([]lineGeom(nil), geom...), append([]dipGeom(nil), dips...)
+		}
+		sp := newSeparable(sub.pts, sub.y, sub.nrhs, f.set.Background, f.sv.centroid, geom, dips)
+		sp.ptsLo, sp.ptsHi = sub.lo, sub.hi
 		sp.lmWork = f.lmWork
 		if prev != nil {
 			sp.a, sp.qty, sp.coef, sp.tau, sp.bbar = prev.a, prev.qty, prev.coef, prev.tau, prev.bbar
@@ -379,7 +386,7 @@ func (f *fitter) bestOf(starts []start, quick bool) (*candidate, error) {
 			}
 			continue
 		}
-		rs = append(rs, ranked{sp, x0, sumSq(r)})
+		rs = append(rs, ranked{sp, x0, sumSq(r), st})
 	}
 	if len(rs) == 0 {
 		if firstErr == nil {
@@ -394,6 +401,12 @@ func (f *fitter) bestOf(starts []start, quick bool) (*candidate, error) {
 		keep, ls.maxIter = 1, roughIter
 	}
 	for _, st := range rs[:min(keep, len(rs))] {
+		if sub != f.sv {
+			// Screened on a subsample: polish on every reading.
+			st.sp = newSeparable(f.sv.pts, f.sv.y, f.sv.nrhs, f.set.Background, f.sv.centroid, st.st.lines, st.st.dips)
+			st.sp.ptsLo, st.sp.ptsHi = f.sv.lo, f.sv.hi
+			st.sp.lmWork = f.lmWork
+		}
 		lmp, _ := st.sp.problem()
 		f.starts++
 		res, err := levmar(lmp, st.x0, ls)

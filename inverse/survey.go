@@ -21,6 +21,40 @@ type survey struct {
 	zmean    float64
 	extent   float64      // largest horizontal distance from the centroid, m
 	anom     [][3]float64 // anomaly of y, once computed
+	screen   *survey      // subsample for ranking starts (screening), once computed
+}
+
+// screenPoints is the number of readings above which starts are ranked on an evenly
+// spaced subsample of about this many readings instead of all of them: the ranking
+// only orders candidate starts (the best are then iterated on every reading), and a
+// few hundred rows order them as well as a few thousand at a fraction of the cost.
+const screenPoints = 128
+
+// screening returns the survey itself, or for large surveys an evenly spaced
+// subsample of its readings (positions, data and path nodes) for ranking starts.
+func (sv *survey) screening() *survey {
+	n := len(sv.pts)
+	if n <= 2*screenPoints {
+		return sv
+	}
+	if sv.screen != nil {
+		return sv.screen
+	}
+	step := (n + screenPoints - 1) / screenPoints
+	k := (n + step - 1) / step
+	sub := &survey{nrhs: sv.nrhs, pts: make([][3]float64, 0, k), y: make([]float64, 0, 3*k*sv.nrhs)}
+	if sv.lo != nil {
+		sub.lo, sub.hi = make([][3]float64, 0, k), make([][3]float64, 0, k)
+	}
+	for i := 0; i < n; i += step {
+		sub.pts = append(sub.pts, sv.pts[i])
+		sub.y = append(sub.y, sv.y[3*i*sv.nrhs:3*(i+1)*sv.nrhs]...)
+		if sv.lo != nil {
+			sub.lo, sub.hi = append(sub.lo, sv.lo[i]), append(sub.hi, sv.hi[i])
+		}
+	}
+	sv.screen = sub
+	return sub
 }
 
 // anomaly returns the anomaly of the readings (see the function anomaly), computed once.
