@@ -114,16 +114,23 @@ func (f *fitter) summarise(c *candidate) (*summary, error) {
 		}
 		flip[l] = a >= math.Pi
 	}
-	derive := func(v []float64) []float64 { return deriveQuantities(sp, f.sv, su.zref, flip, v) }
-	base := derive(su.v)
+	// One set of work buffers for the repeated evaluations of the derived quantities.
+	dw := &deriveWork{geom: make([]lineGeom, nl), cur: make([]complex128, nl)}
+	nqAll := nl * nQuantities
+	qbuf := make([]float64, 3*nqAll+nqAll*len(su.v)+len(su.v))
+	base, up, dn := qbuf[:nqAll], qbuf[nqAll:2*nqAll], qbuf[2*nqAll:3*nqAll]
+	derive := func(v, out []float64) []float64 { return deriveQuantities(sp, f.sv, su.zref, flip, v, dw, out) }
+	derive(su.v, base)
 	nq := len(base) / nl
 	// Gradients by central differences on the (smooth, cheap) map from parameters to
 	// reported quantities, with steps well inside one sigma.
 	grads := make([][]float64, len(base))
+	gbuf := qbuf[3*nqAll : 3*nqAll+nqAll*len(su.v)]
 	for i := range grads {
-		grads[i] = make([]float64, len(su.v))
+		grads[i] = gbuf[i*len(su.v) : (i+1)*len(su.v)]
 	}
-	v := append([]float64(nil), su.v...)
+	v := qbuf[3*nqAll+nqAll*len(su.v):]
+	copy(v, su.v)
 	for j := range su.v {
 		if !derivedReads(sp, j) {
 			continue // the reported line quantities do not depend on it: zero gradient
@@ -134,9 +141,9 @@ func (f *fitter) summarise(c *candidate) (*summary, error) {
 			h = 1e-7 * (math.Abs(su.v[j]) + 1)
 		}
 		v[j] = su.v[j] + h
-		up := derive(v)
+		derive(v, up)
 		v[j] = su.v[j] - h
-		dn := derive(v)
+		derive(v, dn)
 		v[j] = su.v[j]
 		for i := range base {
 			d := up[i] - dn[i]
@@ -318,12 +325,22 @@ func derivedReads(sp *separable, j int) bool {
 	return (j-np)%q < nl
 }
 
+// deriveWork holds deriveQuantities' work buffers between calls.
+type deriveWork struct {
+	geom []lineGeom
+	cur  []complex128
+}
+
 // deriveQuantities maps a full parameter vector to the reported quantities of every
-// line (nQuantities each).
-func deriveQuantities(sp *separable, sv *survey, zref float64, flip []bool, v []float64) []float64 {
+// line (nQuantities each), written to out (allocated when short) and returned. w holds
+// work buffers reused between calls, or is nil.
+func deriveQuantities(sp *separable, sv *survey, zref float64, flip []bool, v []float64, w *deriveWork, out []float64) []float64 {
 	np := sp.nparams()
 	nl, q, nr := len(sp.geom), sp.q, sp.nrhs
-	geom := append([]lineGeom(nil), sp.geom...)
+	if w == nil {
+		w = &deriveWork{}
+	}
+	geom := append(w.geom[:0], sp.geom...)
 	k := 0
 	for i := range geom {
 		g := &geom[i]
@@ -338,7 +355,10 @@ func deriveQuantities(sp *separable, sv *survey, zref float64, flip []bool, v []
 			k++
 		}
 	}
-	cur := make([]complex128, nl)
+	if cap(w.cur) < nl {
+		w.cur = make([]complex128, nl)
+	}
+	cur := w.cur[:nl]
 	for l := range nl {
 		re := v[np+l]
 		var im float64
@@ -350,7 +370,10 @@ func deriveQuantities(sp *separable, sv *survey, zref float64, flip []bool, v []
 			cur[l] = -cur[l]
 		}
 	}
-	out := make([]float64, nl*nQuantities)
+	if len(out) < nl*nQuantities {
+		out = make([]float64, nl*nQuantities)
+	}
+	out = out[:nl*nQuantities]
 	for l, g := range geom {
 		ln := g.line()
 		u := ln.Dir

@@ -149,6 +149,9 @@ func (sp *separable) nparams() int {
 
 // pack returns the free geometry parameters and their bounds.
 func (sp *separable) pack() (x, lo, hi []float64) {
+	n := sp.nparams()
+	buf := make([]float64, 3*n)
+	x, lo, hi = buf[:0:n], buf[n:n:2*n], buf[2*n:2*n:3*n]
 	for _, g := range sp.geom {
 		x = append(x, g.s, g.z)
 		lo = append(lo, g.sLo, g.zLo)
