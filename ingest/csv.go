@@ -17,9 +17,19 @@ import (
 const maxLineBytes = 16 << 20
 
 // csvReader parses CSV in parallel: a splitter goroutine cuts the input
-// into chunks of whole lines, parser goroutines turn chunks into record
+// into chunks of whole records, parser goroutines turn chunks into record
 // batches, and Next hands them out in input order. At most 2 x workers + 2
 // chunks are in flight, so memory does not depend on the file's size.
+//
+// A quoted field may hold newlines (IETF RFC 4180 section 2, rule 6), in
+// the header and in data rows; such a record spans several physical lines
+// and is at most maxLineBytes long. Chunks holding no quote character are
+// cut and parsed line by line as before; only chunks with quotes pay for
+// tracking which newlines lie inside quoted fields. Blank-separated files
+// keep one record per line. Line numbers in errors count physical lines:
+// a bad value is reported on the line where its field starts, a short or
+// long row on the line where its record starts, and an unterminated quote
+// on the line of the opening quote.
 type csvReader struct {
 	name    string
 	closer  io.Closer
@@ -33,6 +43,8 @@ type csvReader struct {
 	ops     []int // per source column: canonical index, opSkip or opGroup
 	opScale []float64
 	fast    bool // lines may take fastLine
+	quotes  bool // quoted fields may hold newlines (not in blank-separated files)
+	comment []byte
 	pending chan chan csvResult
 	jobs    chan csvJob
 	done    chan struct{}
@@ -81,27 +93,29 @@ func newCSVReader(name string, rd io.Reader, cfg *config) (*csvReader, error) {
 	r := &csvReader{name: name, closer: closer, cfg: cfg, br: bufio.NewReaderSize(rd, 64<<10), last: math.NaN()}
 	meta := map[string]string{}
 	lineNo := 0
-	var headerLine []byte
+	var raw []byte   // the physical line that starts the header record
+	var rerr error   // read error that came with raw
 	var carry []byte // raw bytes already read that belong to the data
+	var headerStart int
 	for {
-		raw, err := readLine(r.br)
-		if len(raw) == 0 && err != nil {
-			if err == io.EOF {
+		raw, rerr = readLine(r.br)
+		if len(raw) == 0 && rerr != nil {
+			if rerr == io.EOF {
 				if lineNo == 0 {
 					return nil, fileErr(name, nil, "empty file")
 				}
 				return nil, fileErr(name, nil, "no header line (only blank or comment lines)")
 			}
-			return nil, fileErr(name, err, "read error")
+			return nil, fileErr(name, rerr, "read error")
 		}
 		if len(raw) > maxLineBytes {
 			return nil, lineErr(name, lineNo+1, "", "", "line longer than %d bytes", maxLineBytes)
 		}
 		lineNo++
-		ln := bytes.TrimRight(raw, "\r\n")
 		if lineNo == 1 {
-			ln = bytes.TrimPrefix(ln, []byte("\xef\xbb\xbf")) // UTF-8 byte order mark
+			raw = bytes.TrimPrefix(raw, []byte("\xef\xbb\xbf")) // UTF-8 byte order mark
 		}
+		ln := bytes.TrimRight(raw, "\r\n")
 		if len(bytes.TrimSpace(ln)) == 0 {
 			continue
 		}
@@ -112,30 +126,44 @@ func newCSVReader(name string, rd io.Reader, cfg *config) (*csvReader, error) {
 			}
 			continue
 		}
-		headerLine = ln
-		if cfg.header != nil {
-			carry = append([]byte(nil), raw...)
-			lineNo-- // the line is data, parsed again below
-		}
+		headerStart = lineNo
 		break
 	}
 	r.delim, r.ws = cfg.delim, cfg.whitespace
 	if r.delim == 0 {
-		r.delim, r.ws = guessDelimiter(headerLine)
+		// Sniffed from the first physical line of the header record.
+		r.delim, r.ws = guessDelimiter(bytes.TrimRight(raw, "\r\n"))
+	}
+	r.comment = []byte(cfg.comment)
+	r.quotes = !r.ws && r.delim != '"'
+	// A quoted header name may hold a newline: read on to the line that
+	// closes it.
+	raw, open, rerr := r.finishRecord(raw, rerr)
+	lineNo = headerStart + bytes.Count(bytes.TrimRight(raw, "\n"), []byte{'\n'})
+	if open >= 0 {
+		if rerr != nil && rerr != io.EOF {
+			return nil, fileErr(name, rerr, "read error near line %d", lineNo)
+		}
+		return nil, r.openQuoteErr(raw, open, headerStart, rerr == io.EOF)
+	}
+	headerLine := bytes.TrimRight(raw, "\r\n")
+	if cfg.header != nil {
+		carry = append([]byte(nil), raw...)
+		lineNo = headerStart - 1 // the record is data, parsed again below
 	}
 	var header []string
 	if cfg.header != nil {
 		header = cfg.header
 	} else {
 		for _, f := range splitFields(headerLine, r.delim, r.ws, nil) {
-			header = append(header, strings.TrimSpace(string(unquote(f))))
+			header = append(header, headerName(f))
 		}
 	}
 	r.ncols = len(header)
 	pl, err := newPlan(name, string(FormatCSV), header, nil, meta, cfg)
 	if err != nil {
 		if e, ok := err.(*Error); ok && cfg.header == nil {
-			e.Line = lineNo
+			e.Line = headerStart
 		}
 		return nil, err
 	}
@@ -164,7 +192,11 @@ func newCSVReader(name string, rd io.Reader, cfg *config) (*csvReader, error) {
 		var rb rawBatch
 		for {
 			raw, err := readLine(r.br)
+			raw, open, err := r.finishRecord(raw, err)
 			carry = append(carry, raw...)
+			if open >= 0 {
+				break // the parse below reports the open quote
+			}
 			if len(raw) > 0 {
 				rb.reset(pl)
 				if e := r.parseChunk(raw, 1, &rb); e == nil && rb.n > 0 {
@@ -202,6 +234,163 @@ func readLine(br *bufio.Reader) ([]byte, error) {
 		buf = append(buf, line...)
 	}
 	return buf, err
+}
+
+// finishRecord completes the record that starts with the physical line
+// raw (err came with it): while a quoted field is left open at the end of
+// the line, it reads the lines that follow. open is the offset in rec of a
+// quote still open when the input ends, fails or the record outgrows
+// maxLineBytes; -1 when the record is complete. err is the last read
+// error.
+func (r *csvReader) finishRecord(raw []byte, err error) (rec []byte, open int, _ error) {
+	if !r.quotes || bytes.IndexByte(raw, '"') < 0 {
+		return raw, -1, err
+	}
+	rec = raw
+	_, open = recordEnd(rec, r.delim, r.comment)
+	for open >= 0 && err == nil && len(rec) <= maxLineBytes {
+		var more []byte
+		more, err = readLine(r.br)
+		from := len(rec)
+		rec = append(rec, more...)
+		_, open = scanRecord(rec, from, open, r.delim) // linear: resumes where the scan stopped
+	}
+	return rec, open, err
+}
+
+// recordEnd finds the end of the CSV record that starts at data[0]. It
+// returns the index of the newline that ends the record, or -1 when data
+// ends first; open is then the index of the quote that opened a field
+// still unclosed at the end of data, or -1. It follows RFC 4180 section 2
+// rules 5 to 7 as splitFields reads them: a quote opens a quoted field
+// only as the field's first byte, a doubled quote inside stays in the
+// field, and the field may hold the delimiter, CR and LF; a quote anywhere
+// else is an ordinary character. A blank or comment line is one record
+// whatever quotes it holds, as in parseChunk.
+func recordEnd(data []byte, delim byte, comment []byte) (end, open int) {
+	if len(data) > 0 && (data[0] == ' ' || data[0] == '\t' || (len(comment) > 0 && data[0] == comment[0])) {
+		e := bytes.IndexByte(data, '\n')
+		ln := data
+		if e >= 0 {
+			ln = data[:e]
+		}
+		if t := bytes.TrimSpace(ln); len(t) == 0 || (len(comment) > 0 && bytes.HasPrefix(t, comment)) {
+			return e, -1
+		}
+	}
+	return scanRecord(data, 0, -1, delim)
+}
+
+// scanRecord is recordEnd without the comment test, resumable: it starts
+// at data[i], which is a field's start when q < 0 and lies inside the
+// quoted field opened at q otherwise. When it reports an open quote, all
+// of data from i on is inside that field, so a caller that appends more
+// input can resume at the old length with q = open. A quote that is the
+// last byte of data closes its field (at the end of the input it does; in
+// the middle, the caller sees no record end and reads on).
+func scanRecord(data []byte, i, q int, delim byte) (end, open int) {
+	n := len(data)
+	for {
+		if q < 0 && i < n && data[i] == '"' {
+			q, i = i, i+1
+		}
+		if q >= 0 {
+			for {
+				k := bytes.IndexByte(data[i:], '"')
+				if k < 0 {
+					return -1, q
+				}
+				i += k + 1
+				if i < n && data[i] == '"' {
+					i++ // doubled quote
+					continue
+				}
+				break
+			}
+			q = -1
+		}
+		// Unquoted text (or what follows a closing quote) up to the
+		// delimiter or the newline.
+		for i < n {
+			c := data[i]
+			if c == '\n' {
+				return i, -1
+			}
+			i++
+			if c == delim {
+				break
+			}
+		}
+		if i >= n {
+			return -1, -1
+		}
+	}
+}
+
+// lastRecordEnd returns the index of the last newline in data that ends a
+// record (-1 when none does); data starts at a record's start. open is as
+// for recordEnd, for the record left unfinished at the end of data. Data
+// without a quote takes the plain path: every newline ends a record.
+func (r *csvReader) lastRecordEnd(data []byte) (cut, open int) {
+	if !r.quotes {
+		return bytes.LastIndexByte(data, '\n'), -1
+	}
+	cut, start := -1, 0
+	for {
+		q := bytes.IndexByte(data[start:], '"')
+		if q < 0 {
+			if k := bytes.LastIndexByte(data[start:], '\n'); k >= 0 {
+				return start + k, -1
+			}
+			return cut, -1
+		}
+		// Lines before the one holding the quote end records.
+		if k := bytes.LastIndexByte(data[start:start+q], '\n'); k >= 0 {
+			cut = start + k
+			start = cut + 1
+		}
+		e, o := recordEnd(data[start:], r.delim, r.comment)
+		if e < 0 {
+			if o >= 0 {
+				o += start
+			}
+			return cut, o
+		}
+		cut = start + e
+		start = cut + 1
+	}
+}
+
+// openQuoteErr reports a quoted field that is never closed. rec is the
+// record starting on line, open the offset of the field's opening quote;
+// the error names the line of that quote. atEOF tells whether the input
+// ended (rather than the record outgrowing maxLineBytes).
+func (r *csvReader) openQuoteErr(rec []byte, open, line int, atEOF bool) *Error {
+	line += bytes.Count(rec[:open], []byte{'\n'})
+	field := len(splitFields(rec[:open], r.delim, false, nil)) - 1
+	col, where := "", ""
+	if r.pl != nil && field < len(r.pl.header) {
+		col = r.pl.header[field]
+	} else {
+		where = fmt.Sprintf(" (field %d)", field+1)
+	}
+	text := string(rec[open:])
+	why := "before the end of the file"
+	if !atEOF {
+		why = fmt.Sprintf("within %d bytes", maxLineBytes)
+	}
+	return lineErr(r.name, line, col, text, "unterminated quote: the quoted field%s starting %s is not closed %s", where, quoteText(text), why)
+}
+
+// headerName turns a header field into a column name: blanks trimmed,
+// quotes removed, and a line break inside a quoted name (a spreadsheet's
+// wrapped "Bx\n(nT)") read as one space.
+func headerName(f []byte) string {
+	s := strings.TrimSpace(string(unquote(f)))
+	if strings.ContainsAny(s, "\r\n") {
+		s = strings.Join(strings.Fields(strings.NewReplacer("\r", " ", "\n", " ").Replace(s)), " ")
+	}
+	return s
 }
 
 // guessDelimiter picks the most frequent of , ; tab | in the header line,
@@ -299,7 +488,10 @@ func trimField(f []byte) []byte {
 	return f
 }
 
-// parseChunk parses whole lines into rb; line is the number of the first.
+// parseChunk parses whole records into rb; line is the number of the
+// first physical line. A record starts at a line and runs on over newlines
+// inside quoted fields (see recordEnd); rb.line holds the line where each
+// row's record starts.
 func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch) error {
 	pl, cfg := r.pl, r.cfg
 	comment := []byte(cfg.comment)
@@ -322,15 +514,39 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch) error {
 		}
 		rb.line = rb.line[:rb.n]
 	}()
-	line--
+	nextQ := -1 // index in data of the next quote; -1 when none is left
+	if r.quotes {
+		nextQ = bytes.IndexByte(data, '"')
+	}
+	next := line // line number of the next physical line
 	for len(data) > 0 {
+		line = next
+		i := bytes.IndexByte(data, '\n')
+		quoted := nextQ >= 0 && (nextQ < i || i < 0)
+		if quoted {
+			// The record may run on over quoted newlines.
+			e, open := recordEnd(data, r.delim, comment)
+			if open >= 0 {
+				return r.openQuoteErr(data, open, line, true)
+			}
+			i = e
+		}
 		var ln []byte
-		if i := bytes.IndexByte(data, '\n'); i >= 0 {
-			ln, data = data[:i], data[i+1:]
+		used := len(data)
+		if i >= 0 {
+			ln, data, used = data[:i], data[i+1:], i+1
 		} else {
 			ln, data = data, nil
 		}
-		line++
+		next++
+		if quoted {
+			next += bytes.Count(ln, []byte{'\n'})
+		}
+		if nextQ >= 0 {
+			if nextQ -= used; nextQ < 0 {
+				nextQ = bytes.IndexByte(data, '"')
+			}
+		}
 		if n := len(ln); n > 0 && ln[n-1] == '\r' {
 			ln = ln[:n-1]
 		}
@@ -343,7 +559,7 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch) error {
 				continue
 			}
 		}
-		if r.fast && r.fastLine(ln, rb) {
+		if r.fast && !quoted && r.fastLine(ln, rb) {
 			rb.line[rb.n] = line
 			rb.n++
 			continue
@@ -378,7 +594,7 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch) error {
 						if len(t) > 0 {
 							what = fmt.Sprintf("missing value %s", quoteText(string(t)))
 						}
-						return lineErr(r.name, line, pl.header[u.src], string(t), "%s; missing values are not allowed by default", what)
+						return lineErr(r.name, fieldLine(ln, fields[u.src], line), pl.header[u.src], string(t), "%s; missing values are not allowed by default", what)
 					}
 					v = math.NaN()
 				} else if !ok {
@@ -386,9 +602,9 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch) error {
 					if u.c == cTime {
 						what = "is not a number or an RFC 3339 time"
 					}
-					return lineErr(r.name, line, pl.header[u.src], string(t), "%s %s", quoteText(string(t)), what)
+					return lineErr(r.name, fieldLine(ln, fields[u.src], line), pl.header[u.src], string(t), "%s %s", quoteText(string(t)), what)
 				} else {
-					return lineErr(r.name, line, pl.header[u.src], string(t), "%s is out of range", quoteText(string(t)))
+					return lineErr(r.name, fieldLine(ln, fields[u.src], line), pl.header[u.src], string(t), "%s is out of range", quoteText(string(t)))
 				}
 			}
 			if scale != 1 {
@@ -400,6 +616,15 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch) error {
 		rb.n++
 	}
 	return nil
+}
+
+// fieldLine is the physical line on which field f of the record rec
+// starts, rec starting on line.
+func fieldLine(rec, f []byte, line int) int {
+	if off := cap(rec) - cap(f); off > 0 && off <= len(rec) {
+		line += bytes.Count(rec[:off], []byte{'\n'})
+	}
+	return line
 }
 
 // fastLine parses a plain line (no quotes, no blanks around numbers, plain
@@ -477,7 +702,8 @@ func getChunk(n int) []byte {
 
 func putChunk(b []byte) { chunkPool.Put(&b) }
 
-// split cuts the input into chunks that end at a newline.
+// split cuts the input into chunks that end at a newline outside quoted
+// fields, so that every chunk holds whole records.
 func (r *csvReader) split(carry []byte, line int) {
 	defer r.wg.Done()
 	defer close(r.pending)
@@ -531,10 +757,14 @@ func (r *csvReader) split(carry []byte, line int) {
 			}
 			return
 		}
-		cut := bytes.LastIndexByte(data, '\n')
+		cut, open := r.lastRecordEnd(data)
 		if cut < 0 {
 			if len(data) > maxLineBytes {
-				fail(lineErr(r.name, line, "", "", "line longer than %d bytes", maxLineBytes))
+				if open >= 0 {
+					fail(r.openQuoteErr(data, open, line, false))
+				} else {
+					fail(lineErr(r.name, line, "", "", "line longer than %d bytes", maxLineBytes))
+				}
 				return
 			}
 			carry = append(carry[:0], data...)
