@@ -408,8 +408,8 @@ func guessDelimiter(line []byte) (byte, bool) {
 	return best, false
 }
 
-// splitFields appends the fields of one line to dst. Quoted fields may hold
-// the delimiter; a quote inside one is doubled.
+// splitFields appends the fields of one record to dst. Quoted fields may
+// hold the delimiter and line breaks; a quote inside one is doubled.
 func splitFields(ln []byte, delim byte, ws bool, dst [][]byte) [][]byte {
 	if ws {
 		i := 0

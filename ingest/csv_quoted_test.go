@@ -476,3 +476,30 @@ func BenchmarkCSVParseChunk(b *testing.B) {
 	}
 	b.ReportMetric(float64(rows*b.N)/b.Elapsed().Seconds(), "rows/s")
 }
+
+// TestCSVQuotedGroupRoundTrip: a group label holding a line break is
+// written back quoted by the CSV writer and reads back the same.
+func TestCSVQuotedGroupRoundTrip(t *testing.T) {
+	text := "time,bx,by,bz,traverse\n0,1,2,3,\"Fenwick Lane\nnorth verge\"\n1,1,2,3,\"said \"\"B\"\"\r\nagain\"\n2,1,2,3,C\n"
+	want := []string{"Fenwick Lane\nnorth verge", "said \"B\"\r\nagain", "C"}
+	p := writeFile(t, "groups.csv", text)
+	r, err := Open(p, withChunkBytes(7))
+	if err != nil {
+		t.Fatal(err)
+	}
+	q := filepath.Join(t.TempDir(), "again.csv")
+	err = WriteReader(q, r)
+	r.Release()
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, path := range []string{p, q} {
+		s, err := ReadSamples(path, withChunkBytes(5))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if fmt.Sprintf("%q", s.Group) != fmt.Sprintf("%q", want) || s.Len() != 3 || s.Time[2] != 2 {
+			t.Errorf("%s: groups %q, want %q", filepath.Base(path), s.Group, want)
+		}
+	}
+}
