@@ -85,13 +85,23 @@
 //	I(x) = I_after + (I_before - I_after) (1 + (x_f - x)/sqrt((x_f - x)^2 + H^2))/2 + g (x - x_f)
 //
 // over the run's stations and up to eight sound ones beyond each end, with
-// x_f and H found by a grid search, a shared scatter tau^2 added to the
-// stations' own variances (DerSimonian & Laird 1986), and the sigma the
-// half-width of the profile interval of I_after - I_before, scaled by the
-// Birge ratio when that exceeds one; a gradual transition's x_f and H are
-// then polished off the grid and their uncertainty added by the delta
-// method. When the transition's shape places x_f within the bracket the
-// finding gives that location with its sigma.
+// x_f and H found by a grid search, the trend g always fitted (a trend
+// kept only when significant biases the step; see plateau.go), a shared
+// scatter tau^2 added to the stations' own variances (DerSimonian & Laird
+// 1986), and the sigma the half-width of the profile interval of
+// I_after - I_before, scaled by the Birge ratio when that exceeds one; a
+// gradual transition's x_f and H are then polished off the grid and their
+// uncertainty added by the delta method when that is wider. When the
+// transition's shape places x_f within the bracket the finding gives that
+// location with its sigma.
+//
+// The sigmas of the size and the location are checked by Monte Carlo
+// coverage (common practice): on synthetic routes with a known step the
+// spread of (reported - true)/sigma must be close to one (coverage_test.go).
+// With station scatter beyond the fits' sigmas the size's sigma is
+// conservative there, by design: the route's tau is added on top of the
+// plateau fit's own scatter, for model error that neighbouring stations
+// share and that does not average away over a plateau.
 //
 // # Cover
 //

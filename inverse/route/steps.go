@@ -200,7 +200,9 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64) []F
 			f.Position = pointAt(u[ia:ib+1], pl.at)
 			f.Values = append(f.Values, Value{Name: "location (chainage)", Value: pl.at, Sigma: pl.atSigma, Unit: "m"})
 		}
-		if pl.slope != 0 {
+		// The trend is always fitted (see fitLevels) but reported only when
+		// it differs from zero by more than two sigma.
+		if math.Abs(pl.slope) > 2*pl.slopeSigma {
 			f.Values = append(f.Values, Value{Name: "trend", Value: pl.slope, Sigma: pl.slopeSigma, Unit: "A/m"})
 		}
 		for i := ia; i <= ib; i++ {
