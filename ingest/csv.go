@@ -281,19 +281,18 @@ func recordEnd(data []byte, delim byte, comment []byte) (end, open int) {
 	return scanRecord(data, 0, -1, delim)
 }
 
-// scanRecord is recordEnd without the comment test, resumable: it starts
-// at data[i], which is a field's start when q < 0 and lies inside the
-// quoted field opened at q otherwise. When it reports an open quote, all
-// of data from i on is inside that field, so a caller that appends more
-// input can resume at the old length with q = open. A quote that is the
-// last byte of data closes its field (at the end of the input it does; in
-// the middle, the caller sees no record end and reads on).
+// scanRecord is recordEnd without the comment test, resumable: data
+// starts at a record's start, and the scan starts at data[i], a field's
+// start when q < 0 and inside the quoted field opened at q otherwise. When
+// it reports an open quote, all of data from i on is inside that field,
+// so a caller that appends more input can resume at the old length with
+// q = open. A quote that is the last byte of data closes its field (at the
+// end of the input it does; in the middle, the caller sees no record end
+// and reads on). Outside quotes it jumps from quote to quote: a quote
+// opens a field only at the record's start or just after a delimiter.
 func scanRecord(data []byte, i, q int, delim byte) (end, open int) {
 	n := len(data)
 	for {
-		if q < 0 && i < n && data[i] == '"' {
-			q, i = i, i+1
-		}
 		if q >= 0 {
 			for {
 				k := bytes.IndexByte(data[i:], '"')
@@ -309,21 +308,23 @@ func scanRecord(data []byte, i, q int, delim byte) (end, open int) {
 			}
 			q = -1
 		}
-		// Unquoted text (or what follows a closing quote) up to the
-		// delimiter or the newline.
-		for i < n {
-			c := data[i]
-			if c == '\n' {
-				return i, -1
-			}
-			i++
-			if c == delim {
-				break
-			}
+		// Unquoted text up to the next quote: the record ends at a
+		// newline before it.
+		k := bytes.IndexByte(data[i:], '"')
+		lim := n
+		if k >= 0 {
+			lim = i + k
 		}
-		if i >= n {
+		if e := bytes.IndexByte(data[i:lim], '\n'); e >= 0 {
+			return i + e, -1
+		}
+		if k < 0 {
 			return -1, -1
 		}
+		if lim == 0 || data[lim-1] == delim {
+			q = lim // opens a quoted field
+		}
+		i = lim + 1
 	}
 }
 
@@ -802,11 +803,19 @@ func (r *csvReader) work() {
 func (r *csvReader) parseJob(j csvJob, rb *rawBatch) csvResult {
 	pl := r.pl
 	rb.reset(pl)
-	if err := r.parseChunk(j.data, j.line, rb); err != nil {
-		return csvResult{err: err}
-	}
-	if rb.n == 0 {
-		return csvResult{firstTime: math.NaN(), lastTime: math.NaN()}
+	err := r.parseChunk(j.data, j.line, rb)
+	if err != nil || rb.n == 0 {
+		res := csvResult{err: err, firstTime: math.NaN(), lastTime: math.NaN()}
+		if err != nil && !r.cfg.allowBackwards {
+			// A step back in time on a row before the bad one comes
+			// first in the file, whatever the chunking: report that.
+			t := rb.f[cTime]
+			if i := firstBackwards(t, math.NaN()); i > 0 {
+				res.err = backwardsErr(r.name, rb.line[i], pl.header[pl.src[cTime]], t[i], lastTime(t[:i], math.NaN()))
+			}
+			res.firstTime, res.firstLine = firstTime(t, rb.line)
+		}
+		return res
 	}
 	pl.transform(rb)
 	t := rb.f[cTime]
@@ -815,14 +824,20 @@ func (r *csvReader) parseJob(j csvJob, rb *rawBatch) csvResult {
 			return csvResult{err: backwardsErr(r.name, rb.line[i], pl.header[pl.src[cTime]], t[i], lastTime(t[:i], math.NaN()))}
 		}
 	}
-	res := csvResult{rec: pl.record(r.cfg.mem, rb), firstTime: math.NaN(), lastTime: lastTime(t, math.NaN())}
+	res := csvResult{rec: pl.record(r.cfg.mem, rb), lastTime: lastTime(t, math.NaN())}
+	res.firstTime, res.firstLine = firstTime(t, rb.line)
+	return res
+}
+
+// firstTime returns the first time that is not NaN and its line; NaN when
+// there is none.
+func firstTime(t []float64, lines []int) (float64, int) {
 	for i, v := range t {
 		if v == v {
-			res.firstTime, res.firstLine = v, rb.line[i]
-			break
+			return v, lines[i]
 		}
 	}
-	return res
+	return math.NaN(), 0
 }
 
 func backwardsErr(name string, line int, col string, t, prev float64) *Error {
@@ -845,6 +860,10 @@ func (r *csvReader) Next() bool {
 		res := <-ch
 		if res.err != nil {
 			r.err = res.err
+			if !r.cfg.allowBackwards && res.firstLine > 0 && res.firstTime < r.last {
+				// Rows before the bad one step back from the last chunk.
+				r.err = backwardsErr(r.name, res.firstLine, r.pl.header[r.pl.src[cTime]], res.firstTime, r.last)
+			}
 			r.stop()
 			return false
 		}

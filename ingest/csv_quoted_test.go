@@ -503,3 +503,24 @@ func TestCSVQuotedGroupRoundTrip(t *testing.T) {
 		}
 	}
 }
+
+// TestCSVFirstErrorInFileOrder: when a log holds a step back in time and,
+// later, a bad row, the step back is reported whether or not both fall in
+// one chunk (found by FuzzCSVChunking).
+func TestCSVFirstErrorInFileOrder(t *testing.T) {
+	for _, text := range []string{
+		"time,bx,by,bz,notes\n2,0,0,0,\"a\nb\"\n0,0,0,0,c\n0000\n",
+		"time,bx,by,bz\n1,0,0,0\n2,0,0,0\n0,0,0,0\n3,0,0,x\n",
+	} {
+		want := "column time: time goes backwards: 0 after 2"
+		p := writeFile(t, "order.csv", text)
+		for _, chunk := range []int{1, 9, 1 << 20} {
+			mem := checked(t)
+			_, err := ReadSamples(p, withChunkBytes(chunk), WithAllocator(mem))
+			wantErr(t, err, want)
+			if !strings.Contains(err.Error(), "order.csv:4:") {
+				t.Errorf("chunk %d: error %q does not name line 4", chunk, err)
+			}
+		}
+	}
+}
