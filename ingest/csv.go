@@ -68,8 +68,9 @@ type usedCol struct {
 
 type csvJob struct {
 	data  []byte
-	line  int // line number of the first line in data
-	lines int // newlines in data
+	line  int  // line number of the first line in data
+	lines int  // newlines in data
+	plain bool // data holds no quote character
 	out   chan csvResult
 }
 
@@ -199,7 +200,7 @@ func newCSVReader(name string, rd io.Reader, cfg *config) (*csvReader, error) {
 			}
 			if len(raw) > 0 {
 				rb.reset(pl)
-				if e := r.parseChunk(raw, 1, &rb); e == nil && rb.n > 0 {
+				if e := r.parseChunk(raw, 1, &rb, false); e == nil && rb.n > 0 {
 					o := Geodetic{Lat: rb.f[cLat][0], Lon: rb.f[cLon][0]}
 					if rb.f[cHeight] != nil {
 						o.H = rb.f[cHeight][0]
@@ -331,19 +332,20 @@ func scanRecord(data []byte, i, q int, delim byte) (end, open int) {
 // lastRecordEnd returns the index of the last newline in data that ends a
 // record (-1 when none does); data starts at a record's start. open is as
 // for recordEnd, for the record left unfinished at the end of data. Data
-// without a quote takes the plain path: every newline ends a record.
-func (r *csvReader) lastRecordEnd(data []byte) (cut, open int) {
+// without a quote takes the plain path, and plain reports it: every
+// newline ends a record.
+func (r *csvReader) lastRecordEnd(data []byte) (cut, open int, plain bool) {
 	if !r.quotes {
-		return bytes.LastIndexByte(data, '\n'), -1
+		return bytes.LastIndexByte(data, '\n'), -1, true
 	}
 	cut, start := -1, 0
 	for {
 		q := bytes.IndexByte(data[start:], '"')
 		if q < 0 {
 			if k := bytes.LastIndexByte(data[start:], '\n'); k >= 0 {
-				return start + k, -1
+				return start + k, -1, start == 0
 			}
-			return cut, -1
+			return cut, -1, start == 0
 		}
 		// Lines before the one holding the quote end records.
 		if k := bytes.LastIndexByte(data[start:start+q], '\n'); k >= 0 {
@@ -355,7 +357,7 @@ func (r *csvReader) lastRecordEnd(data []byte) (cut, open int) {
 			if o >= 0 {
 				o += start
 			}
-			return cut, o
+			return cut, o, false
 		}
 		cut = start + e
 		start = cut + 1
@@ -492,8 +494,9 @@ func trimField(f []byte) []byte {
 // parseChunk parses whole records into rb; line is the number of the
 // first physical line. A record starts at a line and runs on over newlines
 // inside quoted fields (see recordEnd); rb.line holds the line where each
-// row's record starts.
-func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch) error {
+// row's record starts. plain tells that data holds no quote character
+// (when false, parseChunk looks).
+func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch, plain bool) error {
 	pl, cfg := r.pl, r.cfg
 	comment := []byte(cfg.comment)
 	var fields [][]byte
@@ -516,7 +519,7 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch) error {
 		rb.line = rb.line[:rb.n]
 	}()
 	nextQ := -1 // index in data of the next quote; -1 when none is left
-	if r.quotes {
+	if r.quotes && !plain {
 		nextQ = bytes.IndexByte(data, '"')
 	}
 	next := line // line number of the next physical line
@@ -758,7 +761,7 @@ func (r *csvReader) split(carry []byte, line int) {
 			}
 			return
 		}
-		cut, open := r.lastRecordEnd(data)
+		cut, open, plain := r.lastRecordEnd(data)
 		if cut < 0 {
 			if len(data) > maxLineBytes {
 				if open >= 0 {
@@ -774,7 +777,7 @@ func (r *csvReader) split(carry []byte, line int) {
 		}
 		carry = append(carry[:0], data[cut+1:]...)
 		lines := bytes.Count(data[:cut+1], []byte{'\n'})
-		if !send(csvJob{data: data[:cut+1], line: line, lines: lines}) {
+		if !send(csvJob{data: data[:cut+1], line: line, lines: lines, plain: plain}) {
 			return
 		}
 		line += lines
@@ -803,7 +806,7 @@ func (r *csvReader) work() {
 func (r *csvReader) parseJob(j csvJob, rb *rawBatch) csvResult {
 	pl := r.pl
 	rb.reset(pl)
-	err := r.parseChunk(j.data, j.line, rb)
+	err := r.parseChunk(j.data, j.line, rb, j.plain)
 	if err != nil || rb.n == 0 {
 		res := csvResult{err: err, firstTime: math.NaN(), lastTime: math.NaN()}
 		if err != nil && !r.cfg.allowBackwards {

@@ -467,7 +467,7 @@ func BenchmarkCSVParseChunk(b *testing.B) {
 	b.ResetTimer()
 	for i := 0; i < b.N; i++ {
 		rb.reset(r.pl)
-		if err := r.parseChunk(data, 2, &rb); err != nil {
+		if err := r.parseChunk(data, 2, &rb, false); err != nil {
 			b.Fatal(err)
 		}
 		if rb.n != rows {
