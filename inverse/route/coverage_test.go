@@ -149,6 +149,8 @@ var mcScenarios = []mcScenario{
 	{name: "sharp, sigmas 0.05-0.3 A", n: 31, spacing: 7.5, i0: 40, d: 9, from: 105, to: 120, sigma: [2]float64{0.05, 0.3}},
 	{name: "sharp, leakage", n: 31, spacing: 7.5, i0: 40, d: 9, from: 105, to: 120, decay: 0.01, sigma: [2]float64{0.1, 0.1}},
 	{name: "sharp, leakage, sigmas 0.05-0.3 A, tau 0.1 A", n: 31, spacing: 7.5, i0: 40, d: 9, from: 105, to: 120, decay: 0.01, sigma: [2]float64{0.05, 0.3}, tau: 0.1},
+	{name: "sharp, slight leakage 0.002 A/m", n: 31, spacing: 7.5, i0: 40, d: 9, from: 105, to: 120, decay: 0.002, sigma: [2]float64{0.1, 0.1}},
+	{name: "sharp, slight leakage 0.004 A/m", n: 31, spacing: 7.5, i0: 40, d: 9, from: 105, to: 120, decay: 0.004, sigma: [2]float64{0.1, 0.1}},
 	{name: "sharp, tau 0.2 A", n: 31, spacing: 7.5, i0: 40, d: 9, from: 105, to: 120, sigma: [2]float64{0.05, 0.05}, tau: 0.2},
 	{name: "smeared h 3 m", n: 31, spacing: 7.5, i0: 40, d: 9, from: 105, to: 120, h: 3, sigma: [2]float64{0.1, 0.1}},
 	{name: "smeared h 6 m", n: 31, spacing: 7.5, i0: 40, d: 9, from: 105, to: 120, h: 6, sigma: [2]float64{0.1, 0.1}},
@@ -205,10 +207,11 @@ func checkCoverage(t *testing.T, what string, z []float64, conservative bool) {
 // of the grid's profile interval and the delta method (see refine) and
 // must not be optimistic.
 //
-// Before the trend was always fitted, the sharp step on a leaking route
-// with mixed sigmas gave sd(z) = 1.80 and 84% two-sigma coverage for the
-// size (the trend dropped as insignificant, the step took it up), and the
-// location's delta-method sigma gave sd(z) = 2.5 with mixed sigmas.
+// Before the trend was always fitted, a trend of 0.002 A/m (about two of
+// its sigmas) gave mean z = -2.0 and 42% two-sigma coverage for the size,
+// and the sharp step on a leaking route with mixed sigmas and scatter sd(z)
+// = 1.87 and 84% (the trend dropped as insignificant, the step took it
+// up); the location's delta-method sigma gave sd(z) = 1.5 with scatter.
 func TestStepSigmaMonteCarlo(t *testing.T) {
 	cases := []struct {
 		scenario         string
@@ -217,6 +220,7 @@ func TestStepSigmaMonteCarlo(t *testing.T) {
 		locConservative  bool
 	}{
 		{scenario: "sharp, leakage"},
+		{scenario: "sharp, slight leakage 0.002 A/m"},
 		{scenario: "sharp, leakage, sigmas 0.05-0.3 A, tau 0.1 A", sizeConservative: true},
 		{scenario: "smeared h 4 m, leakage, sigmas 0.05-0.3 A", checkLocation: true, locConservative: true},
 		{scenario: "smeared h 4 m, leakage, sigmas 0.05-0.3 A, tau 0.1 A", checkLocation: true, locConservative: true},

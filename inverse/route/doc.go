@@ -97,7 +97,9 @@
 //
 // The sigmas of the size and the location are checked by Monte Carlo
 // coverage (common practice): on synthetic routes with a known step the
-// spread of (reported - true)/sigma must be close to one (coverage_test.go).
+// spread of (reported - true)/sigma must be close to one, on station
+// lists built directly (coverage_test.go) and through the line fits of
+// simulated traverses (coverage_fits_test.go).
 // With station scatter beyond the fits' sigmas the size's sigma is
 // conservative there, by design: the route's tau is added on top of the
 // plateau fit's own scatter, for model error that neighbouring stations
