@@ -371,9 +371,13 @@ func (r *csvReader) lastRecordEnd(data []byte) (cut, open int, plain bool) {
 func (r *csvReader) openQuoteErr(rec []byte, open, line int, atEOF bool) *Error {
 	line += bytes.Count(rec[:open], []byte{'\n'})
 	field := len(splitFields(rec[:open], r.delim, false, nil)) - 1
+	header := r.cfg.header // given names, or nil while the header is read
+	if r.pl != nil {
+		header = r.pl.header
+	}
 	col, where := "", ""
-	if r.pl != nil && field < len(r.pl.header) {
-		col = r.pl.header[field]
+	if field < len(header) {
+		col = header[field]
 	} else {
 		where = fmt.Sprintf(" (field %d)", field+1)
 	}

@@ -57,6 +57,35 @@ func quotedLog(nl string, notes bool) string {
 	return b.String()
 }
 
+// A spreadsheet export from Harrow Fen substation: the wrapped header
+// cell and the crew's notes hold line breaks inside quotes (RFC 4180); the
+// notes column is not a reading and is passed over, and line numbers count
+// physical lines.
+func ExampleReadSamples_quotedNotes() {
+	dir, _ := os.MkdirTemp("", "example")
+	defer os.RemoveAll(dir)
+	p := filepath.Join(dir, "harrow-fen.csv")
+	os.WriteFile(p, []byte("time,\"Bx\n(uT)\",By_uT,Bz_uT,notes\n"+
+		"0,1.5,19.9,-45.2,\"gate 4, east side\nsecond visit\"\n"+
+		"1,1.6,19.8,-45.1,\"\"\"wet\"\" ground\"\n"+
+		"2,1.7,19.8,-45.0,\"meter\nreset\n"), 0o644)
+
+	_, err := ReadSamples(p)
+	fmt.Println(filepath.Base(err.Error()))
+	os.WriteFile(p, []byte("time,\"Bx\n(uT)\",By_uT,Bz_uT,notes\n"+
+		"0,1.5,19.9,-45.2,\"gate 4, east side\nsecond visit\"\n"+
+		"1,1.6,19.8,-45.1,\"\"\"wet\"\" ground\"\n"), 0o644)
+	s, err := ReadSamples(p)
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	fmt.Println(s.Len(), "rows, bx (nT):", s.Bx)
+	// Output:
+	// harrow-fen.csv:6: column notes: unterminated quote: the quoted field starting "\"meter\nreset\n" is not closed before the end of the file
+	// 2 rows, bx (nT): [1500 1600]
+}
+
 // TestCSVQuotedNewlines reads a log whose notes column holds quoted line
 // breaks with chunk sizes that put chunk boundaries inside the quoted
 // fields, and expects the values of the same log without the notes.
@@ -230,6 +259,7 @@ func TestCSVQuotedErrors(t *testing.T) {
 			`log.csv:3: column more: unterminated quote`},
 		{"unterminated after doubled quotes", "time,bx,by,bz,notes\n0,1,2,3,\"say \"\"hi\"\"\n",
 			`log.csv:2: column notes: unterminated quote`},
+		{"unterminated in the first row, header given", "0,1,2,3,\"open\n", `log.csv:1: column notes: unterminated quote`},
 		{"newline in a quoted number", "time,bx,by,bz\n0,1,\"2\n\",3\n", `log.csv:2: column by: "2\n" is not a number`},
 		{"bad value on a later line", "time,notes,bx,by,bz\n0,\"crew\r\nnote\",1,2,1oo\r\n", `log.csv:3: column bz: "1oo" is not a number`},
 		{"short row over two lines", "time,bx,by,bz,notes\n0,1,2,\"x\ny\"\n", `log.csv:2: short row: 4 fields where the header has 5: "0,1,2,\"x\ny\""`},
@@ -243,6 +273,9 @@ func TestCSVQuotedErrors(t *testing.T) {
 					opts := []Option{withChunkBytes(chunk), WithAllocator(mem)}
 					if slow {
 						opts = append(opts, withSlowPathOnly())
+					}
+					if !strings.HasPrefix(tc.text, "time") {
+						opts = append(opts, WithHeader("time", "bx", "by", "bz", "notes"))
 					}
 					_, err := ReadSamples(writeFile(t, "log.csv", tc.text), opts...)
 					wantErr(t, err, tc.want)
