@@ -567,7 +567,7 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch, plain bool) 
 				continue
 			}
 		}
-		if r.fast && !quoted && r.fastLine(ln, rb) {
+		if r.fast && r.fastLine(ln, rb) {
 			rb.line[rb.n] = line
 			rb.n++
 			continue
@@ -635,9 +635,11 @@ func fieldLine(rec, f []byte, line int) int {
 	return line
 }
 
-// fastLine parses a plain line (no quotes, no blanks around numbers, plain
-// decimals) in one pass, the number parser finding the end of each field.
-// It appends nothing and returns false when the line needs the general path
+// fastLine parses a plain record (no blanks around numbers, plain
+// decimals, quotes only in ignored text columns) in one pass, the number
+// parser finding the end of each field. A quoted text field is skipped as
+// splitFields reads it, delimiters and line breaks inside included. It
+// appends nothing and returns false when the record needs the general path
 // (which also produces the error messages).
 func (r *csvReader) fastLine(ln []byte, rb *rawBatch) bool {
 	p, n, d, row := 0, len(ln), r.delim, rb.n
@@ -648,10 +650,22 @@ func (r *csvReader) fastLine(ln []byte, rb *rawBatch) bool {
 			return false // short row
 		}
 		if op < 0 {
-			j := bytes.IndexByte(ln[p:], d)
+			q := p
+			if op == opSkip && p < n && ln[p] == '"' {
+				for q++; ; q++ { // to the closing quote, over doubled ones
+					j := bytes.IndexByte(ln[q:], '"')
+					if j < 0 {
+						return false
+					}
+					if q += j + 1; q == n || ln[q] != '"' {
+						break
+					}
+				}
+			}
+			j := bytes.IndexByte(ln[q:], d)
 			end := n
 			if j >= 0 {
-				end = p + j
+				end = q + j
 			}
 			if op == opGroup {
 				f := ln[p:end]

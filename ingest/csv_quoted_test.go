@@ -260,6 +260,7 @@ func TestCSVQuotedErrors(t *testing.T) {
 		{"unterminated after doubled quotes", "time,bx,by,bz,notes\n0,1,2,3,\"say \"\"hi\"\"\n",
 			`log.csv:2: column notes: unterminated quote`},
 		{"unterminated in the first row, header given", "0,1,2,3,\"open\n", `log.csv:1: column notes: unterminated quote`},
+		{"delimiters inside a quoted text field", "time,note,bx,note2,by,bz\n0,\"a,1,x\",2,3\n", `log.csv:2: short row: 4 fields where the header has 6`},
 		{"newline in a quoted number", "time,bx,by,bz\n0,1,\"2\n\",3\n", `log.csv:2: column by: "2\n" is not a number`},
 		{"bad value on a later line", "time,notes,bx,by,bz\n0,\"crew\r\nnote\",1,2,1oo\r\n", `log.csv:3: column bz: "1oo" is not a number`},
 		{"short row over two lines", "time,bx,by,bz,notes\n0,1,2,\"x\ny\"\n", `log.csv:2: short row: 4 fields where the header has 5: "0,1,2,\"x\ny\""`},
