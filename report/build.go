@@ -53,6 +53,10 @@ type BuildSettings struct {
 	// ProfileMax is the most readings per group kept for the report's
 	// plots; 0 means 240, negative keeps none.
 	ProfileMax int
+	// TrackMinStations is the fewest groups a further conductor must be
+	// seen in to be followed along the route as a track of its own
+	// (Document.Conductors); 0 means 3, negative follows none.
+	TrackMinStations int
 }
 
 // Build makes the result document from per-group fits: head supplies what
@@ -71,6 +75,12 @@ type BuildSettings struct {
 // dipole-like anomalies, which SetRoute takes into the document. With one
 // group there is no route but the cover and fit checks still run.
 //
+// The other line sources of the groups are linked from group to group by
+// their offset from the strongest conductor into further conductors
+// (tracks.go); each seen in at least TrackMinStations groups gets its own
+// route analysis with the same settings, recorded in Document.Conductors,
+// and its findings join Document.Findings marked with its number.
+//
 // Signal.Mode is set to AC when the problems carry phasors, DC otherwise,
 // keeping head's frequency and window. Build returns an error when fits is
 // empty, a fit has neither a result nor an error, or the route cannot be
@@ -86,12 +96,15 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 	if bs.ProfileMax == 0 {
 		bs.ProfileMax = 240
 	}
+	if bs.TrackMinStations == 0 {
+		bs.TrackMinStations = 3
+	}
 	d := head
 	d.SchemaVersion = SchemaVersion
 	if d.Frame.Kind == "" {
 		d.Frame.Kind = FrameLocalENU
 	}
-	d.Groups, d.Route = nil, nil
+	d.Groups, d.Route, d.Conductors = nil, nil, nil
 	d.Findings = append([]Finding{}, head.Findings...)
 	d.Warnings = append([]string(nil), head.Warnings...)
 
@@ -175,6 +188,18 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 			return nil, err
 		}
 	}
+	var tracks []builtTrack
+	if len(stations) >= 2 {
+		if tracks, err = buildTracks(fits, r, rs, bs.TrackMinStations); err != nil {
+			return nil, err
+		}
+		// d.Groups are still in the order of fits here.
+		for _, t := range tracks {
+			for _, m := range t.members {
+				d.Groups[m.fit].Sources[m.source].Conductor = t.number
+			}
+		}
+	}
 	d.SetRoute(r)
 	if len(stations) < 2 {
 		d.Route = nil
@@ -182,6 +207,7 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 			d.Groups[i].Chainage = nil
 		}
 	}
+	d.addTracks(tracks)
 	return &d, nil
 }
 

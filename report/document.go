@@ -44,8 +44,15 @@ type Document struct {
 	// When there is a route they are in route order.
 	Groups []Group `json:"groups"`
 	// Route is the along-route profile built from the groups; nil with
-	// fewer than two groups.
+	// fewer than two groups. It follows the strongest conductor of each
+	// group (conductor 1).
 	Route *Route `json:"route,omitempty"`
+	// Conductors are further conductors followed along the route: the
+	// other line sources of the groups, linked from group to group by
+	// their offset from conductor 1 (see Build), numbered from 2 by
+	// decreasing current. Empty when every group holds one conductor or
+	// none was seen in enough groups.
+	Conductors []Track `json:"conductors,omitempty"`
 	// Findings list what a crew should act on, most pressing first.
 	Findings []Finding `json:"findings"`
 	// Warnings are notes about the run (skipped rows, clipped readings).
@@ -237,6 +244,10 @@ type Source struct {
 	// ("azimuth", "depth").
 	Unidentifiable []string `json:"unidentifiable,omitempty"`
 	Notes          []string `json:"notes,omitempty"`
+	// Conductor is the number of the further conductor (Track.Number)
+	// this source was followed in; 0 when it is in none (the first source
+	// of a group is conductor 1, the one Document.Route follows).
+	Conductor int `json:"conductor,omitempty"`
 }
 
 // Profile is a compact copy of a group's readings: enough to plot the
@@ -262,6 +273,22 @@ type Route struct {
 	Length float64 `json:"length_m"`
 	// Stations are the groups in route order.
 	Stations []Station `json:"stations"`
+}
+
+// Track is a further conductor followed along the route.
+type Track struct {
+	// Number is the conductor's number, 2, 3, ...: the findings about it
+	// carry it in Finding.Conductor and the sources that make it up in
+	// Source.Conductor.
+	Number int `json:"number"`
+	// Offset is the median signed horizontal offset of this conductor
+	// from conductor 1, m, positive to the right looking along increasing
+	// chainage.
+	Offset float64 `json:"offset_m"`
+	// Route is the along-route profile of this conductor, one station per
+	// group it was seen in. Its chainage is measured along this
+	// conductor from its first station.
+	Route Route `json:"route"`
 }
 
 // Station is one group's conductor on the route.
@@ -310,6 +337,10 @@ type Finding struct {
 	Message string `json:"message"`
 	// Values are the numbers behind the finding.
 	Values []Value `json:"values,omitempty"`
+	// Conductor is the number of the further conductor (Track.Number)
+	// the finding is about, its chainage measured along that conductor's
+	// route; 0 for conductor 1, Document.Route.
+	Conductor int `json:"conductor,omitempty"`
 }
 
 // Value is a number with its sigma and unit.

@@ -20,39 +20,13 @@ func (d *Document) SetRoute(r *route.Route) {
 	if r == nil {
 		return
 	}
-	ref := d.DepthReference
-	groundKnown := ref.Kind == DepthBelowGround || ref.SensorHeight > 0
-	out := &Route{Length: r.Length, Stations: make([]Station, len(r.Stations))}
+	d.Route = d.routeOf(r)
 	pos := map[string]int{}
 	for i, p := range r.Stations {
-		s := Station{
-			Key:          p.Key,
-			Chainage:     p.Chainage,
-			Point:        p.Point,
-			Direction:    p.Dir,
-			Current:      p.Current,
-			CurrentSigma: p.CurrentSigma,
-			Depth:        p.Depth,
-			DepthSigma:   p.DepthSigma,
-			Used:         p.OK && !p.Dipole,
-		}
-		if p.AC {
-			ph := p.Phase
-			s.Phase = &ph
-		}
-		if groundKnown && s.Used {
-			c := p.Depth
-			if ref.Kind == DepthBelowSensors {
-				c -= ref.SensorHeight
-			}
-			s.Cover = &c
-		}
-		out.Stations[i] = s
 		if _, dup := pos[p.Key]; !dup {
 			pos[p.Key] = i
 		}
 	}
-	d.Route = out
 	for i := range d.Groups {
 		g := &d.Groups[i]
 		k, ok := pos[g.Key]
@@ -83,21 +57,64 @@ func (d *Document) SetRoute(r *route.Route) {
 		return *a < *b
 	})
 	for _, f := range r.Findings {
-		nf := Finding{
-			Kind:         string(f.Kind),
-			Severity:     string(f.Severity),
-			ChainageFrom: f.From,
-			ChainageTo:   f.To,
-			Position:     f.Position,
-			Groups:       append([]string(nil), f.Keys...),
-			Message:      f.Message,
-		}
-		for _, v := range f.Values {
-			nf.Values = append(nf.Values, Value{Name: v.Name, Value: v.Value, Sigma: v.Sigma, Unit: v.Unit})
-		}
-		d.Findings = append(d.Findings, nf)
+		d.Findings = append(d.Findings, findingOf(f))
 	}
 	SortFindings(d.Findings)
+}
+
+// routeOf converts the along-route analysis r into the document's Route,
+// without touching d: stations in route order with their chainage, point,
+// direction along increasing chainage and current, used when their fit is
+// sound and not taken for a magnetised object, and cover per used station
+// when the document's depth reference knows the ground (DepthBelowGround,
+// or a non-zero sensor height).
+func (d *Document) routeOf(r *route.Route) *Route {
+	ref := d.DepthReference
+	groundKnown := ref.Kind == DepthBelowGround || ref.SensorHeight > 0
+	out := &Route{Length: r.Length, Stations: make([]Station, len(r.Stations))}
+	for i, p := range r.Stations {
+		s := Station{
+			Key:          p.Key,
+			Chainage:     p.Chainage,
+			Point:        p.Point,
+			Direction:    p.Dir,
+			Current:      p.Current,
+			CurrentSigma: p.CurrentSigma,
+			Depth:        p.Depth,
+			DepthSigma:   p.DepthSigma,
+			Used:         p.OK && !p.Dipole,
+		}
+		if p.AC {
+			ph := p.Phase
+			s.Phase = &ph
+		}
+		if groundKnown && s.Used {
+			c := p.Depth
+			if ref.Kind == DepthBelowSensors {
+				c -= ref.SensorHeight
+			}
+			s.Cover = &c
+		}
+		out.Stations[i] = s
+	}
+	return out
+}
+
+// findingOf converts one finding of the route analysis.
+func findingOf(f route.Finding) Finding {
+	nf := Finding{
+		Kind:         string(f.Kind),
+		Severity:     string(f.Severity),
+		ChainageFrom: f.From,
+		ChainageTo:   f.To,
+		Position:     f.Position,
+		Groups:       append([]string(nil), f.Keys...),
+		Message:      f.Message,
+	}
+	for _, v := range f.Values {
+		nf.Values = append(nf.Values, Value{Name: v.Name, Value: v.Value, Sigma: v.Sigma, Unit: v.Unit})
+	}
+	return nf
 }
 
 // flipSource describes the same line conductor with its direction reversed.

@@ -27,13 +27,17 @@ const (
 // Features, each with a "feature" property naming what it is:
 //
 //   - "route": a LineString through the route's stations (when there is a
-//     route), with length_m;
+//     route), with length_m and stations; one more per further conductor
+//     followed along the route (Document.Conductors), with its number in
+//     "conductor" and its median offset from conductor 1 in offset_m;
 //   - "conductor": one per line source, a LineString over the stretch the
 //     readings see (a Point when that is unknown), with the group key,
-//     current, depth and their sigmas;
+//     current, depth and their sigmas, and "conductor" when the source
+//     belongs to a further conductor;
 //   - "object": one Point per dipole source;
 //   - "finding": one Point per finding at its position, with kind,
-//     severity, chainage range and message.
+//     severity, chainage range and message, and "conductor" when it is
+//     about a further conductor.
 func WriteGeoJSON(w io.Writer, d *Document) error {
 	if err := d.Validate(); err != nil {
 		return err
@@ -64,6 +68,26 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 			},
 		})
 	}
+	for _, t := range d.Conductors {
+		if len(t.Route.Stations) < 2 {
+			continue
+		}
+		pts := make([][3]float64, len(t.Route.Stations))
+		for i, s := range t.Route.Stations {
+			pts[i] = s.Point
+		}
+		fc.Features = append(fc.Features, feature{
+			Type:     "Feature",
+			Geometry: d.line(pts),
+			Properties: map[string]any{
+				"feature":   "route",
+				"conductor": t.Number,
+				"length_m":  round(t.Route.Length, 3),
+				"stations":  len(t.Route.Stations),
+				"offset_m":  round(t.Offset, 3),
+			},
+		})
+	}
 	for _, g := range d.Groups {
 		for i, s := range g.Sources {
 			props := map[string]any{
@@ -75,6 +99,9 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 			}
 			if g.Chainage != nil {
 				props["chainage_m"] = round(*g.Chainage, 3)
+			}
+			if s.Conductor > 0 {
+				props["conductor"] = s.Conductor
 			}
 			if c, ok := d.cover(s.Depth); ok {
 				props["cover_m"] = round(c, 3)
@@ -111,6 +138,9 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 		}
 		if len(f.Groups) > 0 {
 			props["groups"] = f.Groups
+		}
+		if f.Conductor > 0 {
+			props["conductor"] = f.Conductor
 		}
 		fc.Features = append(fc.Features, feature{Type: "Feature", Geometry: d.point(f.Position), Properties: props})
 	}

@@ -50,6 +50,7 @@ type view struct {
 	Current    template.HTML
 	Depth      template.HTML
 	DepthNote  string
+	Tracks     []trackView
 	Profiles   []template.HTML
 	Groups     []groupRow
 	FitNotes   []string
@@ -57,6 +58,13 @@ type view struct {
 	FrameText  string
 	SignalText string
 	Settings   [][2]string
+}
+
+// trackView is the section of the crew report on one further conductor.
+type trackView struct {
+	Number         int
+	Lead           string
+	Current, Depth template.HTML
 }
 
 type findingRow struct {
@@ -170,10 +178,14 @@ func num(v float64) string {
 func (v *view) where(f Finding) string {
 	var parts []string
 	if v.D.Route != nil {
+		along := ""
+		if f.Conductor > 0 {
+			along = fmt.Sprintf(" along conductor %d", f.Conductor)
+		}
 		if f.ChainageTo > f.ChainageFrom {
-			parts = append(parts, fmt.Sprintf("chainage %.0f–%.0f m", f.ChainageFrom, f.ChainageTo))
+			parts = append(parts, fmt.Sprintf("chainage %.0f–%.0f m%s", f.ChainageFrom, f.ChainageTo, along))
 		} else {
-			parts = append(parts, fmt.Sprintf("chainage %.0f m", f.ChainageFrom))
+			parts = append(parts, fmt.Sprintf("chainage %.0f m%s", f.ChainageFrom, along))
 		}
 	}
 	parts = append(parts, en(f.Position))
@@ -356,6 +368,9 @@ func (v *view) summarise() {
 			}
 			v.Headline = append(v.Headline, line+".")
 		}
+		for _, t := range d.Conductors {
+			v.Headline = append(v.Headline, trackHeadline(d, &t))
+		}
 	} else {
 		for _, g := range d.Groups {
 			for i, s := range g.Sources {
@@ -393,6 +408,29 @@ func (v *view) summarise() {
 	if ok < len(d.Groups) {
 		v.HowSure += fmt.Sprintf(" %d of %d fits failed and are not used.", len(d.Groups)-ok, len(d.Groups))
 	}
+}
+
+// trackHeadline says in a sentence where a further conductor runs and
+// what it carries.
+func trackHeadline(d *Document, t *Track) string {
+	side := "right"
+	if t.Offset < 0 {
+		side = "left"
+	}
+	line := fmt.Sprintf("Conductor %d was followed for %.0f m in %d groups, %s m to the %s of conductor 1 (looking along the route)",
+		t.Number, t.Route.Length, len(t.Route.Stations), num(math.Abs(t.Offset)), side)
+	var used []Station
+	for _, s := range t.Route.Stations {
+		if s.Used {
+			used = append(used, s)
+		}
+	}
+	if len(used) > 0 {
+		a, b := used[0], used[len(used)-1]
+		line += fmt.Sprintf("; current %s ± %s A at %s and %s ± %s A at %s",
+			num(a.Current), num(a.CurrentSigma), a.Key, num(b.Current), num(b.CurrentSigma), b.Key)
+	}
+	return line + "."
 }
 
 func shortRef(d *Document) string {
@@ -434,24 +472,25 @@ func (v *view) plots() error {
 		return err
 	}
 	if d.Route != nil && len(d.Route.Stations) > 1 {
-		p, err := alongPlot(d, "current")
-		if err != nil {
-			return fmt.Errorf("report: current plot: %w", err)
-		}
-		if v.Current, err = svg(p, 20*vg.Centimeter, 8.5*vg.Centimeter, "current along the route"); err != nil {
-			return err
-		}
-		p, err = alongPlot(d, "depth")
-		if err != nil {
-			return fmt.Errorf("report: depth plot: %w", err)
-		}
-		if v.Depth, err = svg(p, 20*vg.Centimeter, 8.5*vg.Centimeter, "depth along the route"); err != nil {
+		var err error
+		if v.Current, v.Depth, err = alongPlots(d, d.Route, 0); err != nil {
 			return err
 		}
 		if _, ok := groundDepth(d); !ok {
 			v.DepthNote = "The ground and the minimum-cover line are not drawn: the sensors' height above ground was not given."
 		} else if d.MinCover == nil {
 			v.DepthNote = "No minimum cover was given, so none is drawn or checked."
+		}
+		for i := range d.Conductors {
+			t := &d.Conductors[i]
+			if len(t.Route.Stations) < 2 {
+				continue
+			}
+			tv := trackView{Number: t.Number, Lead: trackHeadline(d, t)}
+			if tv.Current, tv.Depth, err = alongPlots(d, &t.Route, t.Number); err != nil {
+				return err
+			}
+			v.Tracks = append(v.Tracks, tv)
 		}
 	}
 	for _, g := range profileGroups(d) {
@@ -466,6 +505,30 @@ func (v *view) plots() error {
 		v.Profiles = append(v.Profiles, s)
 	}
 	return nil
+}
+
+// alongPlots renders current and depth along route r, the primary route
+// when conductor is 0, else the route of that further conductor.
+func alongPlots(d *Document, r *Route, conductor int) (cur, dep template.HTML, err error) {
+	what := "the route"
+	if conductor > 0 {
+		what = fmt.Sprintf("conductor %d", conductor)
+	}
+	p, err := alongPlot(d, r, conductor, "current")
+	if err != nil {
+		return "", "", fmt.Errorf("report: current plot of %s: %w", what, err)
+	}
+	if cur, err = svg(p, 20*vg.Centimeter, 8.5*vg.Centimeter, "current along "+what); err != nil {
+		return "", "", err
+	}
+	p, err = alongPlot(d, r, conductor, "depth")
+	if err != nil {
+		return "", "", fmt.Errorf("report: depth plot of %s: %w", what, err)
+	}
+	if dep, err = svg(p, 20*vg.Centimeter, 8.5*vg.Centimeter, "depth along "+what); err != nil {
+		return "", "", err
+	}
+	return cur, dep, nil
 }
 
 // profileGroups picks up to MaxProfilePlots groups with profiles: one for

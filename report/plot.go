@@ -30,7 +30,17 @@ var (
 	colCaution = color.RGBA{0xc9, 0x8a, 0x00, 0xff}
 	colInfo    = color.RGBA{0x5f, 0x6b, 0x7a, 0xff}
 	colGround  = color.RGBA{0x6b, 0x4f, 0x2a, 0xff}
+	colTrack   = color.RGBA{0x3d, 0x47, 0x52, 0xff}
 )
+
+// trackDashes are the line styles of further conductors in the plan view,
+// by number from 2: dashed, dotted, dash-dot, then round again. Plain
+// patterns in one neutral ink, so that the conductors read apart in print
+// without a colour code.
+var trackDashes = [][]vg.Length{{6, 3}, {1.5, 2.5}, {6, 2.5, 1.5, 2.5}}
+
+// trackGlyphs mark the stations of further conductors, in the same order.
+var trackGlyphs = []draw.GlyphDrawer{draw.RingGlyph{}, draw.SquareGlyph{}, draw.CrossGlyph{}}
 
 func severityColour(s string) color.Color {
 	switch s {
@@ -196,10 +206,36 @@ func planPlot(d *Document) (*plot.Plot, error) {
 		if err != nil {
 			return nil, err
 		}
-		p.Legend.Add("fitted route", l)
+		name := "fitted route"
+		if len(d.Conductors) > 0 {
+			name = "fitted route, conductor 1"
+		}
+		p.Legend.Add(name, l)
 		if _, err := scatter(p, xy{rx, ry}, draw.CircleGlyph{}, colFit, 2.2); err != nil {
 			return nil, err
 		}
+	}
+	for _, t := range d.Conductors {
+		if len(t.Route.Stations) < 2 {
+			continue
+		}
+		var tx, ty []float64
+		for _, st := range t.Route.Stations {
+			tx, ty = append(tx, st.Point[0]), append(ty, st.Point[1])
+		}
+		k := (t.Number - 2) % len(trackDashes)
+		if k < 0 {
+			k = 0
+		}
+		l, err := polyline(p, xy{tx, ty}, colTrack, 1.4, trackDashes[k]...)
+		if err != nil {
+			return nil, err
+		}
+		s, err := scatter(p, xy{tx, ty}, trackGlyphs[k], colTrack, 2)
+		if err != nil {
+			return nil, err
+		}
+		p.Legend.Add(fmt.Sprintf("conductor %d", t.Number), l, s)
 	}
 	if err := addFindingMarks(p, d); err != nil {
 		return nil, err
@@ -270,11 +306,11 @@ func squareUp(p *plot.Plot) {
 	p.Y.Min, p.Y.Max = cy-half, cy+half
 }
 
-// alongPlot plots current (which = "current") or depth along the route
+// alongPlot plots current (which = "current") or depth along route r
 // with +-2 sigma bars; the depth plot has the ground and minimum-cover
-// lines when they are known.
-func alongPlot(d *Document, which string) (*plot.Plot, error) {
-	r := d.Route
+// lines when they are known. r is d.Route when conductor is 0, else the
+// route of that further conductor, whose steps it marks.
+func alongPlot(d *Document, r *Route, conductor int, which string) (*plot.Plot, error) {
 	var x, y, e, ux, uy []float64
 	for _, st := range r.Stations {
 		v, s := st.Current, st.CurrentSigma
@@ -295,7 +331,12 @@ func alongPlot(d *Document, which string) (*plot.Plot, error) {
 		title = "Depth along the route"
 		ylabel = "depth below " + depthRefShort(d) + " (m)"
 	}
-	p := newPlot(title, "chainage (m)", ylabel)
+	xlabel := "chainage (m)"
+	if conductor > 0 {
+		title = fmt.Sprintf("Conductor %d: %s along it", conductor, strings.ToLower(strings.TrimSuffix(title, " along the route")))
+		xlabel = fmt.Sprintf("chainage along conductor %d (m)", conductor)
+	}
+	p := newPlot(title, xlabel, ylabel)
 	if which == "depth" {
 		p.Y.Scale = plot.InvertedScale{Normalizer: plot.LinearScale{}}
 	}
@@ -352,7 +393,7 @@ func alongPlot(d *Document, which string) (*plot.Plot, error) {
 	if which == "current" {
 		padY(p, 0.05, 0.35)
 		for _, f := range d.Findings {
-			if f.Kind != "current-step" {
+			if f.Kind != "current-step" || f.Conductor != conductor {
 				continue
 			}
 			m := (f.ChainageFrom + f.ChainageTo) / 2

@@ -91,7 +91,7 @@ footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rul
 <section>
 <h2>Plan view</h2>
 <figure class="plan">{{.Plan}}
-<figcaption>Readings (grey), fitted conductor{{if .D.Route}} and route (blue){{end}}{{if .Findings}}, findings numbered as in the summary (triangles coloured by severity){{end}}. Coordinates: {{.FrameText}}.</figcaption>
+<figcaption>Readings (grey), fitted conductor{{if .D.Route}} and route (blue){{end}}{{if .Tracks}}, further conductors followed along the route (dark grey, each with its own line pattern, named in the legend){{end}}{{if .Findings}}, findings numbered as in the summary (triangles coloured by severity){{end}}. Coordinates: {{.FrameText}}.</figcaption>
 </figure>
 </section>
 
@@ -106,7 +106,18 @@ footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rul
 </section>
 {{end}}
 
-{{if .Profiles}}<section>
+{{range .Tracks}}<section>
+<h2>Conductor {{.Number}} along the route</h2>
+<p>{{.Lead}} Its findings are listed in the summary, marked “conductor {{.Number}}”. Chainage here is measured along conductor {{.Number}} from its first station.</p>
+<figure>{{.Current}}
+<figcaption>Fitted current of conductor {{.Number}} per group with ± two standard deviations; dashed red lines mark its steps in current. Current is signed along the direction of increasing chainage.</figcaption>
+</figure>
+<figure>{{.Depth}}
+<figcaption>Depth of conductor {{.Number}} {{$.DepthRef}}, with ± two standard deviations.{{with $.DepthNote}} {{.}}{{end}}</figcaption>
+</figure>
+</section>
+
+{{end}}{{if .Profiles}}<section>
 <h2>Measured and fitted field</h2>
 <p>For a few groups: the field measured (markers) and the field of the fitted model (lines), east, north and up components, across the conductor, both less the fitted uniform background. A good fit runs through the markers.</p>
 {{range .Profiles}}<figure>{{.}}</figure>

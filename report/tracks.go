@@ -1,0 +1,346 @@
+package report
+
+import (
+	"fmt"
+	"math"
+	"sort"
+
+	"undercurrent/inverse"
+	"undercurrent/inverse/route"
+)
+
+// Conductor tracks.
+//
+// The route follows the strongest source of each group: that is the
+// primary track, conductor 1, reported in Document.Route. A group may hold
+// further line sources (a parallel pipe, a second circuit, a return). Build
+// follows them too, as further tracks, so that a fault or a shallow stretch
+// on a weaker conductor is reported as well:
+//
+//   - Each further line source of a group the primary route uses (its fit
+//     converged and is not taken for a magnetised object) is placed by its
+//     signed horizontal offset from the primary conductor, measured in the
+//     vertical plane through the primary's point square to the primary's
+//     direction, positive to the right looking along increasing chainage.
+//     A line within 60 degrees of the primary's direction in plan is met
+//     in that plane; a line more nearly square to it is placed by its own
+//     point. Dipole sources are not conductors and are skipped.
+//   - The groups are walked in route order. Each open track predicts the
+//     offset at the group: its last offset, carried on by the slope between
+//     its last two stations (per metre of chainage, at most 1 in magnitude)
+//     when it has two, so that two conductors whose offsets approach, meet
+//     and part again keep their own tracks instead of swapping at the
+//     meeting. A source's distance from a track is taken in the cross
+//     section, from the predicted offset and the track's last depth:
+//
+//     distance = hypot(offset - predicted offset, depth - last depth)
+//
+//     so that a deep, weak source (a fit absorbing some misfit) is not
+//     taken for a shallow conductor above it. The source may join the track
+//     when the distance is within the gate
+//
+//     gate = max(1 m, 1.5 min(depth of the source, last depth of the track))
+//
+//     The field of a line spreads across the traverse over about its depth,
+//     so the fitted position of one conductor wanders by a fraction of its
+//     depth from group to group, while conductors laid side by side are
+//     usually further apart than that. The shallower of the two depths
+//     keeps a deep, poorly placed source from opening a wide gate; the
+//     metre floor keeps shallow conductors from losing their track to
+//     fitting noise.
+//   - Within a group, the pairs of source and track within their gate are
+//     taken nearest first (ties by track number, then by source), so the
+//     order in which the fit lists its sources does not matter and a group
+//     gives a track at most one source. A source left over starts a new
+//     track. A group with no source for a track leaves a gap in it.
+//   - Tracks with fewer than BuildSettings.TrackMinStations stations (3 by
+//     default) are dropped: a weak spurious source in one group starts a
+//     track but does not make one. The others are numbered 2, 3, ... by
+//     decreasing median |current| (ties by their first station along the
+//     route, then by median offset).
+//
+// Each kept track is analysed by route.Build with the primary's settings:
+// its stations carry the group's fit statistics, so steps, cover and
+// anomalies are judged as on the primary. A track's chainage is measured
+// along its own stations from its first one, as route.Build measures it.
+// Poor fits are a property of a group's fit, shared by all its conductors:
+// they are reported once, on the primary route, and a track's poor-fit
+// findings for the same groups are not repeated.
+
+// trackSource is one line source offered for association: the fit and
+// source it comes from and where it lies across the primary conductor.
+type trackSource struct {
+	fit, source int     // indices into the fits and the fit's sources
+	pos         int     // the group's position along the primary route
+	chainage    float64 // the group's chainage on the primary route, m
+	offset      float64 // signed offset from the primary conductor, m
+	depth       float64 // depth below the depth reference, m
+	current     float64 // |current|, A
+}
+
+// trackGate is the largest distance, m, of a source from a track for the
+// source to join it (see above).
+func trackGate(depthA, depthB float64) float64 {
+	return math.Max(1, 1.5*math.Min(depthA, depthB))
+}
+
+// maxTrackSlope bounds the change of a track's offset per metre of
+// chainage used to predict its next offset.
+const maxTrackSlope = 1.0
+
+// openTrack is a track being built by associate.
+type openTrack struct {
+	members []trackSource
+}
+
+// predict is the track's offset expected at chainage c.
+func (t *openTrack) predict(c float64) float64 {
+	n := len(t.members)
+	last := t.members[n-1]
+	if n < 2 {
+		return last.offset
+	}
+	prev := t.members[n-2]
+	dc := last.chainage - prev.chainage
+	if dc <= 0 {
+		return last.offset
+	}
+	slope := (last.offset - prev.offset) / dc
+	slope = math.Max(-maxTrackSlope, math.Min(maxTrackSlope, slope))
+	return last.offset + slope*(c-last.chainage)
+}
+
+// associate links the candidate sources of the groups, given in route
+// order, into tracks (see the rules above) and returns the tracks with at
+// least minStations stations, in the order they are numbered (2, 3, ...).
+func associate(groups [][]trackSource, minStations int) [][]trackSource {
+	var tracks []*openTrack
+	for _, cands := range groups {
+		if len(cands) == 0 {
+			continue
+		}
+		type pair struct {
+			track, cand int
+			dist        float64
+		}
+		var pairs []pair
+		for ti, t := range tracks {
+			last := t.members[len(t.members)-1]
+			for ci, c := range cands {
+				pred := t.predict(c.chainage)
+				if d := math.Hypot(c.offset-pred, c.depth-last.depth); d <= trackGate(c.depth, last.depth) {
+					pairs = append(pairs, pair{ti, ci, d})
+				}
+			}
+		}
+		sort.SliceStable(pairs, func(i, j int) bool {
+			a, b := pairs[i], pairs[j]
+			if a.dist != b.dist {
+				return a.dist < b.dist
+			}
+			if a.track != b.track {
+				return a.track < b.track
+			}
+			return a.cand < b.cand
+		})
+		usedTrack := make([]bool, len(tracks))
+		usedCand := make([]bool, len(cands))
+		for _, p := range pairs {
+			if usedTrack[p.track] || usedCand[p.cand] {
+				continue
+			}
+			usedTrack[p.track], usedCand[p.cand] = true, true
+			tracks[p.track].members = append(tracks[p.track].members, cands[p.cand])
+		}
+		// Sources left over start tracks, in order across the route so
+		// that the fit's order of sources does not matter.
+		var rest []trackSource
+		for ci, c := range cands {
+			if !usedCand[ci] {
+				rest = append(rest, c)
+			}
+		}
+		sort.SliceStable(rest, func(i, j int) bool { return rest[i].offset < rest[j].offset })
+		for _, c := range rest {
+			tracks = append(tracks, &openTrack{members: []trackSource{c}})
+		}
+	}
+	type kept struct {
+		members          []trackSource
+		current, offset  float64
+		first, createdAt int
+	}
+	var out []kept
+	for i, t := range tracks {
+		if len(t.members) < minStations {
+			continue
+		}
+		cur := make([]float64, len(t.members))
+		off := make([]float64, len(t.members))
+		for k, m := range t.members {
+			cur[k], off[k] = m.current, m.offset
+		}
+		out = append(out, kept{t.members, median(cur), median(off), t.members[0].pos, i})
+	}
+	sort.SliceStable(out, func(i, j int) bool {
+		a, b := out[i], out[j]
+		if a.current != b.current {
+			return a.current > b.current
+		}
+		if a.first != b.first {
+			return a.first < b.first
+		}
+		if a.offset != b.offset {
+			return a.offset < b.offset
+		}
+		return a.createdAt < b.createdAt
+	})
+	res := make([][]trackSource, len(out))
+	for i, k := range out {
+		res[i] = k.members
+	}
+	return res
+}
+
+// trackCandidates lists, for each station of the primary route r in route
+// order, the further line sources of its fit that may belong to a track,
+// placed across the primary conductor. Groups the primary route does not
+// use give none.
+func trackCandidates(fits []Fit, r *route.Route) [][]trackSource {
+	out := make([][]trackSource, len(r.Stations))
+	for k := range r.Stations {
+		p := &r.Stations[k]
+		if !p.OK || p.Dipole || p.Index < 0 || p.Index >= len(fits) {
+			continue
+		}
+		res := fits[p.Index].Result
+		if res == nil || len(res.Sources) < 2 {
+			continue
+		}
+		uh := math.Hypot(p.Dir[0], p.Dir[1])
+		if uh == 0 {
+			continue
+		}
+		u := [2]float64{p.Dir[0] / uh, p.Dir[1] / uh}
+		right := [2]float64{u[1], -u[0]}
+		for j, s := range res.Sources[1:] {
+			if s.Kind == KindDipole {
+				continue
+			}
+			off, depth := crossOffset(p.Point, u, right, s)
+			if !finite(off) || !finite(depth) || !finite(s.Current) {
+				continue
+			}
+			out[k] = append(out[k], trackSource{
+				fit: p.Index, source: j + 1, pos: k, chainage: p.Chainage,
+				offset: off, depth: depth, current: math.Abs(s.Current),
+			})
+		}
+	}
+	return out
+}
+
+// crossOffset places line s across the primary conductor through p with
+// horizontal unit direction u: its signed offset to the right, and its
+// depth, where it meets the vertical plane through p square to u (or at its
+// own point when it runs within 30 degrees of square to u in plan).
+func crossOffset(p [3]float64, u, right [2]float64, s inverse.SourceEstimate) (offset, depth float64) {
+	q := s.Point
+	depth = s.Depth
+	if den := s.Dir[0]*u[0] + s.Dir[1]*u[1]; math.Abs(den) > 0.5 {
+		t := -((q[0]-p[0])*u[0] + (q[1]-p[1])*u[1]) / den
+		q = along(q, s.Dir, t)
+		depth -= t * s.Dir[2]
+	}
+	return (q[0]-p[0])*right[0] + (q[1]-p[1])*right[1], depth
+}
+
+func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
+
+// trackStation is the route station of one source of a track: the
+// primary's station of the group with the source's conductor in place of
+// the strongest one, and the group's fit statistics.
+func trackStation(f *Fit, j int, primary *route.Placed) route.Station {
+	s := f.Result.Sources[j]
+	st := primary.Station
+	st.Point, st.Dir = s.Point, s.Dir
+	st.Current, st.CurrentSigma = s.Current, s.CurrentSigma
+	st.Phase, st.PhaseSigma = s.Phase, s.PhaseSigma
+	st.Depth, st.DepthSigma = s.Depth, s.DepthSigma
+	st.Dipole, st.Object = false, nil
+	return st
+}
+
+// builtTrack is one kept track with its route analysis.
+type builtTrack struct {
+	number  int
+	members []trackSource
+	offset  float64
+	route   *route.Route
+}
+
+// buildTracks associates the further sources of the fits into tracks
+// along the primary route r and analyses each kept one with route.Build
+// and settings rs.
+func buildTracks(fits []Fit, r *route.Route, rs *route.Settings, minStations int) ([]builtTrack, error) {
+	if minStations < 1 {
+		return nil, nil
+	}
+	tracks := associate(trackCandidates(fits, r), minStations)
+	out := make([]builtTrack, 0, len(tracks))
+	for i, members := range tracks {
+		n := i + 2
+		st := make([]route.Station, len(members))
+		off := make([]float64, len(members))
+		for k, m := range members {
+			st[k] = trackStation(&fits[m.fit], m.source, &r.Stations[m.pos])
+			off[k] = m.offset
+		}
+		tr, err := route.Build(st, rs)
+		if err != nil {
+			return nil, fmt.Errorf("report: conductor %d: %w", n, err)
+		}
+		out = append(out, builtTrack{number: n, members: members, offset: median(off), route: tr})
+	}
+	return out, nil
+}
+
+// addTracks records the tracks in d: each as a Track in d.Conductors with
+// its Route, and its findings in d.Findings marked with the conductor's
+// number and prefixed "conductor N: " (poor fits, which the primary route
+// reports for the group, are not repeated), sorted with SortFindings.
+func (d *Document) addTracks(tracks []builtTrack) {
+	if len(tracks) == 0 {
+		return
+	}
+	poor := map[string]bool{}
+	for _, f := range d.Findings {
+		if f.Kind == string(route.KindPoorFit) && f.Conductor == 0 {
+			for _, k := range f.Groups {
+				poor[k] = true
+			}
+		}
+	}
+	for _, t := range tracks {
+		d.Conductors = append(d.Conductors, Track{Number: t.number, Offset: t.offset, Route: *d.routeOf(t.route)})
+		for _, f := range t.route.Findings {
+			if f.Kind == route.KindPoorFit && allIn(f.Keys, poor) {
+				continue
+			}
+			nf := findingOf(f)
+			nf.Conductor = t.number
+			nf.Message = fmt.Sprintf("conductor %d: %s", t.number, nf.Message)
+			d.Findings = append(d.Findings, nf)
+		}
+	}
+	SortFindings(d.Findings)
+}
+
+func allIn(keys []string, set map[string]bool) bool {
+	for _, k := range keys {
+		if !set[k] {
+			return false
+		}
+	}
+	return true
+}
