@@ -13,8 +13,9 @@
 //	f           scalar total field, nanotesla (optional; IAGA-2002 F)
 //
 // Sources are CSV (any delimiter, comment lines, column mapping such as
-// bx=Bx_uT, units per column), Apache Arrow IPC (file and stream), Parquet and
-// IAGA-2002. Open detects the format from the first bytes of the file, not
+// bx=Bx_uT, units per column; quoted fields as in IETF RFC 4180, which may
+// hold the delimiter, doubled quotes and line breaks, one record at most 16
+// MiB), Apache Arrow IPC (file and stream), Parquet and IAGA-2002. Open detects the format from the first bytes of the file, not
 // from its name. Readers hand out arrow.RecordBatch values through
 // Next/RecordBatch/Err and hold only a few batches in memory at a time.
 //
@@ -56,8 +57,9 @@
 // # Errors
 //
 // Every error starts with "ingest:" and names the file and the line (CSV,
-// IAGA-2002) or the batch and row (Arrow, Parquet), the column and the
-// offending text, for example
+// IAGA-2002; physical lines, so a CSV record spanning several lines is named
+// by the line where the offending field starts) or the batch and row (Arrow,
+// Parquet), the column and the offending text, for example
 //
 //	ingest: log.csv:58: column bz: "1oo.0" is not a number
 //
