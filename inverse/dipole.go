@@ -21,9 +21,21 @@ func (d Dipole) Basis(r [3]float64, dst [][3]float64) {
 	if len(dst) != 3 {
 		panic("inverse: Dipole.Basis: dst must have length 3")
 	}
-	dst[0] = d.Field(r, [3]float64{1, 0, 0})
-	dst[1] = d.Field(r, [3]float64{0, 1, 0})
-	dst[2] = d.Field(r, [3]float64{0, 0, 1})
+	// Field(r, e_c) componentwise: k4pi/r^3 (3 v_c v_j / r^2 - delta_cj), symmetric in c, j.
+	v := sub(r, d.Pos)
+	r2 := dot(v, v)
+	inv2 := 1 / r2
+	s := k4pi * inv2 / math.Sqrt(r2)
+	t := 3 * inv2
+	for c := range 3 {
+		for j := range 3 {
+			x := t * v[c] * v[j]
+			if c == j {
+				x--
+			}
+			dst[c][j] = s * x
+		}
+	}
 }
 
 // Field returns the field in tesla at r of moment m (A m^2).

@@ -225,57 +225,18 @@ func strengthsBasis(p *Problem, sources []Source, s Settings, sv *survey) (phi [
 		return nil, 0, 0, 0, 0, fmt.Errorf("inverse: %d readings (3 axes each) are too few for %d strengths", n, q)
 	}
 	phi = make([]float64, m*q)
+	col := 0
+	for si, src := range sources {
+		if err := sourceBasis(p, src, si, phi, q, 1, col); err != nil {
+			return nil, 0, 0, 0, 0, err
+		}
+		col += src.NumStrengths()
+	}
 	basis := make([][3]float64, 8)
 	bgc := Background{Origin: sv.centroid, Gradient: s.Background == BackgroundGradient}
-	// Point readings take the basis at the point; path-averaged readings (Problem.Travel)
-	// its three-point Gauss-Legendre mean over the path (pathMean). The background is
-	// linear in position, so its centre value is its path average.
-	nodes := []struct {
-		off float64
-		w   float64
-	}{{0, 1}}
-	wsum := 1.0
-	if p.Travel != nil {
-		nodes = append(nodes[:1:1], struct{ off, w float64 }{-gaussNode, 5}, struct{ off, w float64 }{gaussNode, 5})
-		nodes[0].w, wsum = 8, 18
-	}
+	// The background is linear in position, so its value at a reading is its average
+	// along the reading's path.
 	for i, r := range p.Points {
-		col := 0
-		for si, src := range sources {
-			k := src.NumStrengths()
-			if cap(basis) < k {
-				basis = make([][3]float64, k)
-			}
-			b := basis[:k]
-			var acc [8][3]float64
-			sum := acc[:0]
-			if k > len(acc) {
-				sum = make([][3]float64, 0, k)
-			}
-			sum = sum[:k]
-			for _, nd := range nodes {
-				at := r
-				if nd.off != 0 {
-					at = add(r, scale(p.Travel[i], nd.off))
-				}
-				src.Basis(at, b)
-				for c := range k {
-					for j := range 3 {
-						sum[c][j] += nd.w * b[c][j]
-					}
-				}
-			}
-			for c := range k {
-				for j := range 3 {
-					v := sum[c][j] / wsum * nT
-					if !finite(v) {
-						return nil, 0, 0, 0, 0, fmt.Errorf("inverse: reading %d lies on source %d (or its path): the field is not finite there", i, si)
-					}
-					phi[(3*i+j)*q+col+c] = v
-				}
-			}
-			col += k
-		}
 		if nb > 0 {
 			bgc.Basis(r, basis[:nb])
 			for c := range nb {
@@ -286,6 +247,55 @@ func strengthsBasis(p *Problem, sources []Source, s Settings, sv *survey) (phi [
 		}
 	}
 	return phi, m, q, ns, nb, nil
+}
+
+// sourceBasis writes the field per unit strength of src, in nanotesla, at every
+// reading into phi: element (row 3i+j, strength c) goes to phi[row*rs + (col+c)*cs].
+// Point readings take the basis at the point; path-averaged readings (Problem.Travel)
+// its three-point Gauss-Legendre mean over the path (pathMean). si numbers the source
+// in the error returned when the field is not finite at a reading.
+func sourceBasis(p *Problem, src Source, si int, phi []float64, rs, cs, col int) error {
+	nodes := []struct {
+		off float64
+		w   float64
+	}{{0, 1}}
+	wsum := 1.0
+	if p.Travel != nil {
+		nodes = append(nodes[:1:1], struct{ off, w float64 }{-gaussNode, 5}, struct{ off, w float64 }{gaussNode, 5})
+		nodes[0].w, wsum = 8, 18
+	}
+	k := src.NumStrengths()
+	var bacc, sacc [8][3]float64
+	b, sum := bacc[:], sacc[:]
+	if k > len(bacc) {
+		b, sum = make([][3]float64, k), make([][3]float64, k)
+	}
+	b, sum = b[:k], sum[:k]
+	for i, r := range p.Points {
+		clear(sum)
+		for _, nd := range nodes {
+			at := r
+			if nd.off != 0 {
+				at = add(r, scale(p.Travel[i], nd.off))
+			}
+			src.Basis(at, b)
+			for c := range k {
+				for j := range 3 {
+					sum[c][j] += nd.w * b[c][j]
+				}
+			}
+		}
+		for c := range k {
+			for j := range 3 {
+				v := sum[c][j] / wsum * nT
+				if !finite(v) {
+					return fmt.Errorf("inverse: reading %d lies on source %d (or its path): the field is not finite there", i, si)
+				}
+				phi[(3*i+j)*rs+(col+c)*cs] = v
+			}
+		}
+	}
+	return nil
 }
 
 // StrengthsRSS returns the residual sum of squares, in nT^2 summed over readings and
