@@ -281,21 +281,56 @@ type dipoleLocator struct {
 	set  *inverse.Settings
 	srcs []inverse.Source // the lines, then the dipole
 	zTop float64          // shallowest allowed height, m
+	// scan factors the lines and background once for the many trial
+	// positions (inverse.StrengthsScan); scanLines are the lines it holds.
+	scan      *inverse.StrengthsScan
+	scanLines []inverse.Line
 }
 
 // rss is the search's objective: the residual sum of squares with a dipole
 // at pos, +Inf when pos is out of bounds or the fit fails. It skips the
-// covariance that fit computes.
+// covariance that fit computes, and refactors the lines only when they
+// have changed since the last call.
 func (l *dipoleLocator) rss(pos [3]float64) float64 {
 	if pos[2] > l.zTop {
 		return math.Inf(1)
 	}
-	l.srcs[len(l.srcs)-1] = inverse.Dipole{Pos: pos}
-	v, err := inverse.StrengthsRSS(l.p, l.srcs, l.set)
+	fixed := l.srcs[:len(l.srcs)-1]
+	if !l.scanHolds(fixed) {
+		sc, err := inverse.NewStrengthsScan(l.p, fixed, l.set)
+		if err != nil {
+			l.scan = nil
+			return math.Inf(1)
+		}
+		l.scan, l.scanLines = sc, l.scanLines[:0]
+		for _, s := range fixed {
+			ln, ok := s.(inverse.Line)
+			if !ok {
+				// Not a line: no record, so the next call factors again.
+				l.scanLines = append(l.scanLines[:0], make([]inverse.Line, len(fixed)+1)...)
+				break
+			}
+			l.scanLines = append(l.scanLines, ln)
+		}
+	}
+	v, err := l.scan.RSS(inverse.Dipole{Pos: pos})
 	if err != nil {
 		return math.Inf(1)
 	}
 	return v
+}
+
+// scanHolds reports whether the scan was built for exactly the lines fixed.
+func (l *dipoleLocator) scanHolds(fixed []inverse.Source) bool {
+	if l.scan == nil || len(fixed) != len(l.scanLines) {
+		return false
+	}
+	for i, s := range fixed {
+		if ln, ok := s.(inverse.Line); !ok || ln != l.scanLines[i] {
+			return false
+		}
+	}
+	return true
 }
 
 func (l *dipoleLocator) fit(pos [3]float64) (*inverse.Result, float64) {
