@@ -81,7 +81,10 @@ type findingRow struct {
 type groupRow struct {
 	Key, Chainage, RMS, Points, Status    string
 	Current, Phase, Depth, Cover, Azimuth []string
-	Bad                                   bool
+	// Conductor numbers each source when further conductors are followed
+	// along the route: 1 for the first, the track's number, or "–".
+	Conductor []string
+	Bad       bool
 }
 
 func newView(d *Document) (*view, error) {
@@ -221,7 +224,17 @@ func (v *view) groupRow(g *Group) groupRow {
 		}
 	}
 	var cur, ph, dep, cov, az []string
-	for _, s := range g.Sources {
+	for i, s := range g.Sources {
+		if len(v.D.Conductors) > 0 {
+			c := "–"
+			switch {
+			case s.Conductor > 0:
+				c = fmt.Sprint(s.Conductor)
+			case i == 0 && s.Kind != KindDipole:
+				c = "1"
+			}
+			r.Conductor = append(r.Conductor, c)
+		}
 		if s.Kind == KindDipole {
 			cur = append(cur, "object")
 			dep = append(dep, num(s.Depth)+" ± "+num(s.DepthSigma))
@@ -271,7 +284,13 @@ func fitNotes(d *Document) []string {
 		}
 		for i, s := range g.Sources {
 			for _, n := range s.Notes {
-				if len(g.Sources) > 1 {
+				switch {
+				case len(g.Sources) > 1 && s.Conductor > 0:
+					n = fmt.Sprintf("conductor %d: %s", s.Conductor, n)
+				case len(g.Sources) > 1 && len(d.Conductors) > 0 && i > 0:
+					// Not followed: its number would read as a track's.
+					n = fmt.Sprintf("source %d: %s", i+1, n)
+				case len(g.Sources) > 1:
 					n = fmt.Sprintf("conductor %d: %s", i+1, n)
 				}
 				add(n, g.Key)

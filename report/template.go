@@ -127,12 +127,12 @@ footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rul
 <section>
 <h2>Every group</h2>
 <div class="wide"><table class="groups">
-<thead><tr><th>Group</th><th>Chainage (m)</th><th>Current (A)</th>{{if eq .D.Signal.Mode "ac"}}<th>Phase (°)</th>{{end}}<th>Depth (m)</th><th>Cover (m)</th><th>Azimuth (°)</th><th>RMS (nT)</th><th>Readings</th><th>Fit</th></tr></thead>
+<thead><tr><th>Group</th><th>Chainage (m)</th>{{if .D.Conductors}}<th>Conductor</th>{{end}}<th>Current (A)</th>{{if eq .D.Signal.Mode "ac"}}<th>Phase (°)</th>{{end}}<th>Depth (m)</th><th>Cover (m)</th><th>Azimuth (°)</th><th>RMS (nT)</th><th>Readings</th><th>Fit</th></tr></thead>
 <tbody>
-{{$ac := eq .D.Signal.Mode "ac"}}{{range .Groups}}<tr{{if .Bad}} class="bad"{{end}}><td>{{.Key}}</td><td class="num">{{.Chainage}}</td><td class="num">{{range $i, $v := .Current}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{if $ac}}<td class="num">{{range $i, $v := .Phase}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{end}}<td class="num">{{range $i, $v := .Depth}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td><td class="num">{{range $i, $v := .Cover}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td><td class="num">{{range $i, $v := .Azimuth}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td><td class="num">{{.RMS}}</td><td class="num">{{.Points}}</td><td>{{.Status}}</td></tr>
+{{$ac := eq .D.Signal.Mode "ac"}}{{$tracks := .D.Conductors}}{{range .Groups}}<tr{{if .Bad}} class="bad"{{end}}><td>{{.Key}}</td><td class="num">{{.Chainage}}</td>{{if $tracks}}<td class="num">{{range $i, $v := .Conductor}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{end}}<td class="num">{{range $i, $v := .Current}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{if $ac}}<td class="num">{{range $i, $v := .Phase}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{end}}<td class="num">{{range $i, $v := .Depth}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td><td class="num">{{range $i, $v := .Cover}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td><td class="num">{{range $i, $v := .Azimuth}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td><td class="num">{{.RMS}}</td><td class="num">{{.Points}}</td><td>{{.Status}}</td></tr>
 {{end}}</tbody>
 </table></div>
-<p class="values">One line per fitted conductor, strongest first. Uncertainties are one standard deviation. Depth is {{.DepthRef}}.</p>
+<p class="values">One line per fitted conductor, strongest first.{{if .D.Conductors}} Conductor: 1 for the one the route follows, 2, 3, ... for the further conductors followed along it, – for a source in no track.{{end}} Uncertainties are one standard deviation. Depth is {{.DepthRef}}.</p>
 {{if .FitNotes}}<h3>Notes from the fits</h3>
 <ul class="values">
 {{range .FitNotes}}<li>{{.}}</li>

@@ -406,3 +406,69 @@ func TestBuildSecondConductorStep(t *testing.T) {
 		t.Errorf("TrackMinStations -1 still followed %d conductors", len(none.Conductors))
 	}
 }
+
+// Build follows the second cable of twoCables as conductor 2 and reports
+// the 7 A it loses between G06 and G07 there.
+func ExampleBuild_conductors() {
+	d, err := Build(Document{Site: "Harrow Fen substation"}, twoCables(true), &BuildSettings{Noise: 2})
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	for _, t := range d.Conductors {
+		fmt.Printf("conductor %d: %d stations, %.1f m to the right of conductor 1\n", t.Number, len(t.Route.Stations), t.Offset)
+	}
+	for _, f := range d.Findings {
+		if f.Kind == "current-step" {
+			fmt.Printf("conductor %d: %s between %s, about %.0f A\n", f.Conductor, f.Kind, strings.Join(f.Groups, " and "), f.Values[0].Value)
+		}
+	}
+	// Output:
+	// conductor 2: 10 stations, 1.8 m to the right of conductor 1
+	// conductor 2: current-step between G06 and G07, about -7 A
+}
+
+// BenchmarkAssociate links the sources of 500 groups: two parallel
+// conductors in every group and a weak deep one in every seventh (a third
+// track).
+func BenchmarkAssociate(b *testing.B) {
+	var in [][]cand
+	for k := 0; k < 500; k++ {
+		c := []cand{{label: 1, offset: 1.5, depth: 0.9, current: 20}, {label: 2, offset: -1.5, depth: 1.1, current: 12}}
+		if k%7 == 3 {
+			c = append(c, cand{label: 9, offset: 4, depth: 2.5, current: 0.3})
+		}
+		in = append(in, c)
+	}
+	groups := groupsOf(in)
+	b.ReportAllocs()
+	for b.Loop() {
+		if got := associate(groups, 3); len(got) != 3 {
+			b.Fatalf("%d tracks", len(got))
+		}
+	}
+}
+
+// BenchmarkBuildTwoConductors is Build over ten groups of two conductors,
+// the second followed as a track with its own route analysis.
+func BenchmarkBuildTwoConductors(b *testing.B) {
+	fits := twoCables(true)
+	b.ReportAllocs()
+	for b.Loop() {
+		if _, err := Build(Document{}, fits, &BuildSettings{Noise: 2}); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+// BenchmarkBuildOneConductor is the same survey without the second
+// conductor, for comparison.
+func BenchmarkBuildOneConductor(b *testing.B) {
+	fits := twoCables(false)
+	b.ReportAllocs()
+	for b.Loop() {
+		if _, err := Build(Document{}, fits, &BuildSettings{Noise: 2}); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
