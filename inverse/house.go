@@ -168,15 +168,32 @@ func jacobiSVD(a []float64, n int, s, v []float64) bool {
 					beta += y * y
 					gamma += x * y
 				}
-				if gamma == 0 || math.Abs(gamma) <= jacobiTol*math.Sqrt(alpha)*math.Sqrt(beta) {
+				if gamma == 0 {
+					continue
+				}
+				// |gamma| <= tol sqrt(alpha beta), squared to save the square roots
+				// while the product is finite.
+				if ab := alpha * beta; ab <= math.MaxFloat64 {
+					if gamma*gamma <= jacobiTol*jacobiTol*ab {
+						continue
+					}
+				} else if math.Abs(gamma) <= jacobiTol*math.Sqrt(alpha)*math.Sqrt(beta) {
 					continue
 				}
 				converged = false
 				// Rotation that makes columns p and q orthogonal: t is the smaller root
-				// of t^2 + 2 zeta t - 1 = 0.
+				// of t^2 + 2 zeta t - 1 = 0. |t| <= 1, so 1 + t^2 cannot overflow;
+				// 1 + zeta^2 can only for |zeta| beyond 1e154, where Hypot takes over.
 				zeta := (beta - alpha) / (2 * gamma)
-				t := math.Copysign(1, zeta) / (math.Abs(zeta) + math.Hypot(1, zeta))
-				c := 1 / math.Hypot(1, t)
+				az := math.Abs(zeta)
+				var root float64
+				if az < 1e150 {
+					root = math.Sqrt(1 + zeta*zeta)
+				} else {
+					root = math.Hypot(1, zeta)
+				}
+				t := math.Copysign(1, zeta) / (az + root)
+				c := 1 / math.Sqrt(1+t*t)
 				sn := c * t
 				rotate(ap, aq, c, sn)
 				rotate(v[p*n:(p+1)*n], v[q*n:(q+1)*n], c, sn)
