@@ -227,8 +227,11 @@ func trackCandidates(fits []Fit, r *route.Route) [][]trackSource {
 			if s.Kind == KindDipole {
 				continue
 			}
+			if !sound(&s) {
+				continue
+			}
 			off, depth := crossOffset(p.Point, u, right, s)
-			if !finite(off) || !finite(depth) || !finite(s.Current) {
+			if !finite(off) || !finite(depth) {
 				continue
 			}
 			out[k] = append(out[k], trackSource{
@@ -256,6 +259,23 @@ func crossOffset(p [3]float64, u, right [2]float64, s inverse.SourceEstimate) (o
 }
 
 func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
+
+// sound reports whether a source's numbers can enter a route analysis:
+// finite, with sigmas that are not negative.
+func sound(s *inverse.SourceEstimate) bool {
+	vals := []float64{s.Point[0], s.Point[1], s.Point[2], s.Dir[0], s.Dir[1], s.Dir[2], s.Current, s.Phase, s.Depth}
+	for _, v := range vals {
+		if !finite(v) {
+			return false
+		}
+	}
+	for _, v := range []float64{s.CurrentSigma, s.PhaseSigma, s.DepthSigma} {
+		if !finite(v) || v < 0 {
+			return false
+		}
+	}
+	return true
+}
 
 // trackStation is the route station of one source of a track: the
 // primary's station of the group with the source's conductor in place of

@@ -472,3 +472,22 @@ func BenchmarkBuildOneConductor(b *testing.B) {
 		}
 	}
 }
+
+// A further source with a number the route cannot use (a NaN sigma) is a
+// gap in its track, not a failed Build.
+func TestBuildTrackSkipsUnsoundSource(t *testing.T) {
+	fits := twoCables(true)
+	fits[4].Result.Sources[1].CurrentSigma = math.NaN()
+	d, err := Build(Document{}, fits, &BuildSettings{Noise: 2})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(d.Conductors) != 1 || len(d.Conductors[0].Route.Stations) != 9 {
+		t.Fatalf("conductors %+v, want one with 9 stations (G05 left out)", d.Conductors)
+	}
+	for _, s := range d.Conductors[0].Route.Stations {
+		if s.Key == "G05" {
+			t.Error("G05's unsound source was followed")
+		}
+	}
+}
