@@ -27,18 +27,24 @@ func cover(ps []Placed, set *Settings) []Finding {
 		if !p.usable() {
 			continue
 		}
-		c := p.Depth - set.SensorHeight
-		if c-k*p.DepthSigma >= set.MinCover {
+		c, sc := p.Depth-set.SensorHeight, coverSigma(p, set)
+		if c-k*sc >= set.MinCover {
 			flush()
 			continue
 		}
 		run = append(run, p)
-		if c+k*p.DepthSigma < set.MinCover {
+		if c+k*sc < set.MinCover {
 			sev = SeverityWarning
 		}
 	}
 	flush()
 	return out
+}
+
+// coverSigma is the one-sigma uncertainty of a station's cover: its depth
+// sigma and Settings.GroundSigma in quadrature.
+func coverSigma(p *Placed, set *Settings) float64 {
+	return math.Hypot(p.DepthSigma, set.GroundSigma)
 }
 
 func coverFinding(run []*Placed, sev Severity, set *Settings, single bool) Finding {
@@ -48,7 +54,7 @@ func coverFinding(run []*Placed, sev Severity, set *Settings, single bool) Findi
 			low = p
 		}
 	}
-	c := low.Depth - set.SensorHeight
+	c, sc := low.Depth-set.SensorHeight, coverSigma(low, set)
 	code := "given (no code named)"
 	if set.CoverCode != "" {
 		code = "of " + set.CoverCode
@@ -74,9 +80,9 @@ func coverFinding(run []*Placed, sev Severity, set *Settings, single bool) Findi
 		Position: low.Point,
 		Keys:     keys,
 		Message: fmt.Sprintf("cover %s m %s %s the %.2f m minimum %s",
-			pm(c, low.DepthSigma), where, verdict, math.Abs(set.MinCover), code),
+			pm(c, sc), where, verdict, math.Abs(set.MinCover), code),
 		Values: []Value{
-			{Name: "cover", Value: c, Sigma: low.DepthSigma, Unit: "m"},
+			{Name: "cover", Value: c, Sigma: sc, Unit: "m"},
 			{Name: "minimum cover", Value: set.MinCover, Unit: "m"},
 		},
 	}

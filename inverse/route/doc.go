@@ -114,4 +114,11 @@
 // general locations; UK distribution practice is 450-600 mm for LV and
 // 600-700 mm for 11 kV. The minimum and the name of the code it comes from
 // are settings.
+//
+// A depth's sigma from the fit covers the reading noise only: at a metre's
+// depth under a strong signal it can be a fraction of a millimetre, while
+// the ground level itself is known only as well as the sensors' height
+// above it was held. Settings.GroundSigma, the one-sigma uncertainty of the
+// ground relative to the depth reference, is added in quadrature to every
+// depth sigma for the cover check and the cover reported.
 package route

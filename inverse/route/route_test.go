@@ -385,6 +385,48 @@ func TestShallowCover(t *testing.T) {
 	}
 }
 
+// TestCoverGroundSigma: the ground level's uncertainty widens the cover's sigma in
+// quadrature, turning a certain verdict into a possible one and flagging a station
+// whose fit alone says it is clear of the minimum.
+func TestCoverGroundSigma(t *testing.T) {
+	const sensor = 0.3
+	st := spur(5, 0, cpCount)
+	for i := range st {
+		st[i].Depth, st[i].DepthSigma = 1.0, 0.0004 // cover 0.70 m, a strong signal's sigma
+	}
+	st[4].Depth = 0.3 + 0.59 // cover 0.59 m: 25 fit sigmas below 0.60 m
+	st[12].Depth = 0.3 + 0.63
+	covers := func(gs float64) []Finding {
+		r, err := Build(st, &Settings{MinCover: 0.6, SensorHeight: sensor, GroundSigma: gs})
+		if err != nil {
+			t.Fatal(err)
+		}
+		var out []Finding
+		for _, f := range r.Findings {
+			if f.Kind == KindShallowCover {
+				out = append(out, f)
+			}
+		}
+		return out
+	}
+	c := covers(0)
+	if len(c) != 1 || c[0].Severity != SeverityWarning || c[0].Values[0].Sigma != 0.0004 {
+		t.Fatalf("fit sigmas only: %+v, want one warning at T04 with sigma 0.0004 m", c)
+	}
+	// 0.02 m of ground uncertainty: 0.59 is within 2 sigma of 0.60 (caution), and so is
+	// 0.63 (0.63 - 2*0.02 < 0.60); 0.70 is not.
+	c = covers(0.02)
+	if len(c) != 2 || c[0].Severity != SeverityCaution || c[1].Severity != SeverityCaution {
+		t.Fatalf("ground sigma 0.02 m: %+v, want two cautions", c)
+	}
+	if want := math.Hypot(0.0004, 0.02); math.Abs(c[0].Values[0].Sigma-want) > 1e-15 {
+		t.Errorf("cover sigma %g, want %g (quadrature)", c[0].Values[0].Sigma, want)
+	}
+	if !strings.Contains(c[0].Message, "0.590 ± 0.020") {
+		t.Errorf("message %q does not give the widened sigma", c[0].Message)
+	}
+}
+
 func TestQualityFindings(t *testing.T) {
 	tests := []struct {
 		name     string

@@ -23,6 +23,14 @@ type Settings struct {
 	// cover = depth - SensorHeight. Zero when depths are already below
 	// ground.
 	SensorHeight float64
+	// GroundSigma is the one-sigma uncertainty, m, of the ground level
+	// relative to the depth reference: how well the sensors' height above
+	// the ground is known as they were carried, ground undulation between
+	// readings. It is added in quadrature to every station's depth sigma
+	// for the cover check and the cover reported. The fits' sigmas cover
+	// the reading noise only, which at a metre's depth and a strong signal
+	// can be a fraction of a millimetre; zero leaves them so.
+	GroundSigma float64
 	// CoverK is the number of standard deviations used to call shallow
 	// cover certain: a station whose cover + CoverK*sigma is still below
 	// MinCover is a warning, otherwise a caution. Zero means 2.
