@@ -43,6 +43,11 @@ type BuildSettings struct {
 	// the code or practice it comes from; 0 for no check.
 	MinCover  float64
 	CoverCode string
+	// GroundSigma is the one-sigma uncertainty of the ground level
+	// relative to the depth reference, m (route.Settings.GroundSigma),
+	// added in quadrature to the depth sigmas for cover; 0 leaves the
+	// fits' sigmas, which cover the reading noise only.
+	GroundSigma float64
 	// StepK is route.Settings.StepK: 0 means 3.
 	StepK float64
 	// Noise is the reading noise the fits were given (inverse.Problem
@@ -154,7 +159,8 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 		}
 	}
 
-	rs := &route.Settings{StepK: bs.StepK, MinCover: bs.MinCover, CoverCode: bs.CoverCode}
+	rs := &route.Settings{StepK: bs.StepK, MinCover: bs.MinCover, CoverCode: bs.CoverCode, GroundSigma: bs.GroundSigma}
+	d.DepthReference.GroundSigma = bs.GroundSigma
 	if d.DepthReference.Kind == DepthBelowSensors {
 		rs.SensorHeight = bs.SensorHeight
 	}

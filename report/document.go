@@ -125,6 +125,10 @@ type DepthReference struct {
 	// known (cover = depth - SensorHeight for DepthBelowSensors); zero
 	// when unknown or when Kind is DepthBelowGround.
 	SensorHeight float64 `json:"sensor_height_m,omitempty"`
+	// GroundSigma is the one-sigma uncertainty of the ground level
+	// relative to the reference, m, that the cover sigmas include; zero
+	// when none was given (cover sigmas then cover the reading noise only).
+	GroundSigma float64 `json:"ground_sigma_m,omitempty"`
 }
 
 // Signal modes.

@@ -135,15 +135,24 @@ func newView(d *Document) (*view, error) {
 
 func depthRefText(d *Document) string {
 	if d.DepthReference.Kind == DepthBelowGround {
-		return fmt.Sprintf("below the ground surface given (up = %.2f m)", d.DepthReference.Z)
+		return fmt.Sprintf("below the ground surface given (up = %.2f m)", d.DepthReference.Z) + groundSigmaText(d)
 	}
 	s := fmt.Sprintf("below the sensors' mean height (up = %.2f m)", d.DepthReference.Z)
 	if h := d.DepthReference.SensorHeight; h > 0 {
 		s += fmt.Sprintf("; sensors %.2f m above ground, so cover = depth − %.2f m", h, h)
 	} else {
 		s += "; sensor height above ground not given, so cover is not computed"
+		return s
 	}
-	return s
+	return s + groundSigmaText(d)
+}
+
+// groundSigmaText says what the cover sigmas include.
+func groundSigmaText(d *Document) string {
+	if g := d.DepthReference.GroundSigma; g > 0 {
+		return fmt.Sprintf("; cover sigmas include %s m (one sigma) for the ground level", num(g))
+	}
+	return "; cover sigmas cover the reading noise only (no uncertainty of the ground level was given)"
 }
 
 func valueText(x Value) string {

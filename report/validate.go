@@ -32,6 +32,9 @@ func (d *Document) Validate() error {
 	default:
 		return fmt.Errorf("report: depth_reference.kind %q is not %q or %q", d.DepthReference.Kind, DepthBelowSensors, DepthBelowGround)
 	}
+	if g := d.DepthReference.GroundSigma; g < 0 || math.IsNaN(g) || math.IsInf(g, 0) {
+		return fmt.Errorf("report: depth_reference.ground_sigma_m %g is not a length >= 0", g)
+	}
 	switch d.Signal.Mode {
 	case SignalDC, SignalAC:
 	default:

@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"io"
+	"math"
 	"path/filepath"
 	"strconv"
 	"strings"
@@ -73,14 +74,16 @@ func runDemo(ctx context.Context, out string, stdout, progress io.Writer) error 
 	// cable's frequency, a window of five cycles (0.1 s: short enough that
 	// the sensor, walked at 1 m/s, moves only 0.1 m while the window
 	// averages the field; see locate's window-travel warning), one fit per
-	// traverse, the sensor's height above ground and a minimum cover for
-	// 11 kV cables.
+	// traverse, the sensor's height above ground (held to about 2 cm, an
+	// assumed figure for a carried sensor) and a minimum cover for 11 kV
+	// cables.
 	o := &locateOptions{
 		freq:         50,
 		window:       0.1,
 		count:        "auto",
 		groupBy:      ingest.ColGroup,
 		sensorHeight: sc.Sensor.Height,
+		groundSigma:  0.02,
 		minCover:     0.6,
 		coverCode:    "UK 11 kV distribution practice, 600-700 mm",
 		title:        "Fenwick Lane 11 kV cable route (demo)",
@@ -92,7 +95,7 @@ func runDemo(ctx context.Context, out string, stdout, progress io.Writer) error 
 	o.given = map[string]string{
 		"freq": "50", "window": "0.1", "group-by": ingest.ColGroup,
 		"sensor-height": strconv.FormatFloat(sc.Sensor.Height, 'g', -1, 64),
-		"min-cover":     "0.6", "cover-code": o.coverCode,
+		"ground-sigma":  "0.02", "min-cover": "0.6", "cover-code": o.coverCode,
 	}
 	var doc *report.Document
 	err = stageDir(out, o.keepNames, func(tmp string) error {
@@ -118,7 +121,7 @@ func runDemo(ctx context.Context, out string, stdout, progress io.Writer) error 
 	fmt.Fprintf(stdout, "simulated %s: %d readings on %d traverses (%s)\n", simulate.DemoPath, s.Len(), len(sc.Lines()), sc.Site)
 	printFindings(stdout, doc)
 	fmt.Fprintf(stdout, "done in %.1f s. Open the crew report: %s\n", time.Since(start).Seconds(), filepath.Join(out, "report.html"))
-	fmt.Fprintf(stdout, "the log and the other results are beside it; rerun the fit with:\n  undercurrent locate --freq 50 --window 0.1 --group-by group --sensor-height %g --min-cover 0.6 %s\n",
+	fmt.Fprintf(stdout, "the log and the other results are beside it; rerun the fit with:\n  undercurrent locate --freq 50 --window 0.1 --group-by group --sensor-height %g --ground-sigma 0.02 --min-cover 0.6 %s\n",
 		sc.Sensor.Height, filepath.Join(out, demoLog))
 	return nil
 }
@@ -134,6 +137,13 @@ func printFindings(w io.Writer, doc *report.Document) {
 	fmt.Fprintf(w, "located: %d of %d traverses fitted soundly", sound, len(doc.Groups))
 	if doc.Route != nil {
 		fmt.Fprintf(w, "; route %.0f m long", doc.Route.Length)
+	}
+	for _, c := range doc.Conductors {
+		side := "right"
+		if c.Offset < 0 {
+			side = "left"
+		}
+		fmt.Fprintf(w, "; conductor %d followed on %d traverses, %.1f m to the %s of conductor 1 looking along the route", c.Number, len(c.Route.Stations), math.Abs(c.Offset), side)
 	}
 	fmt.Fprintln(w)
 	if len(doc.Findings) == 0 {

@@ -40,8 +40,9 @@ const kSigma = 4
 type resultDoc struct {
 	Warnings       []string `json:"warnings"`
 	DepthReference struct {
-		Kind string  `json:"kind"`
-		Z    float64 `json:"z_m"`
+		Kind        string  `json:"kind"`
+		Z           float64 `json:"z_m"`
+		GroundSigma float64 `json:"ground_sigma_m"`
 	} `json:"depth_reference"`
 	Signal struct {
 		Mode string `json:"mode"`
@@ -60,19 +61,31 @@ type resultDoc struct {
 		Sources    []docSource `json:"sources"`
 	} `json:"groups"`
 	Findings []struct {
-		Kind     string     `json:"kind"`
-		Severity string     `json:"severity"`
-		From     float64    `json:"chainage_from_m"`
-		To       float64    `json:"chainage_to_m"`
-		Position [3]float64 `json:"position_m"`
-		Groups   []string   `json:"groups"`
-		Message  string     `json:"message"`
-		Values   []struct {
+		Kind      string     `json:"kind"`
+		Severity  string     `json:"severity"`
+		From      float64    `json:"chainage_from_m"`
+		To        float64    `json:"chainage_to_m"`
+		Position  [3]float64 `json:"position_m"`
+		Groups    []string   `json:"groups"`
+		Message   string     `json:"message"`
+		Conductor int        `json:"conductor"`
+		Values    []struct {
 			Name  string  `json:"name"`
 			Value float64 `json:"value"`
 			Sigma float64 `json:"sigma"`
 		} `json:"values"`
 	} `json:"findings"`
+	Conductors []struct {
+		Number int     `json:"number"`
+		Offset float64 `json:"offset_m"`
+		Route  struct {
+			Stations []struct {
+				Key   string   `json:"key"`
+				Used  bool     `json:"used"`
+				Cover *float64 `json:"cover_m"`
+			} `json:"stations"`
+		} `json:"route"`
+	} `json:"conductors"`
 }
 
 type docSource struct {
@@ -559,9 +572,29 @@ func TestDemo(t *testing.T) {
 				t.Errorf("an anomaly away from the steel object: %s", f.Message)
 			}
 		case "shallow-cover":
-			// 0.4 m of cover from chainage 58 m to 72 m.
-			if f.From <= 65 && 65 <= f.To {
+			// 0.4 m of cover from chainage 58 m to 72 m, its sigma
+			// including the demo's 0.02 m for the ground level.
+			if f.From <= 65 && 65 <= f.To && f.Conductor == 0 {
 				shallow = true
+				if v := f.Values[0]; v.Sigma < 0.02 || !within(v.Value, 0.40, v.Sigma) {
+					t.Errorf("shallow cover %+v, want 0.40 m within %d sigma and a sigma of at least the ground's 0.02 m", v, kSigma)
+				}
+			}
+		}
+	}
+	if g := doc.DepthReference.GroundSigma; g != 0.02 {
+		t.Errorf("depth_reference.ground_sigma_m %g, want the demo's 0.02", g)
+	}
+	// The LV feeder, 2.6 m to the south of the cable (to the right looking
+	// along it) at 0.7 m of cover, is followed as conductor 2.
+	if len(doc.Conductors) != 1 {
+		t.Errorf("%d further conductors followed, want the LV feeder", len(doc.Conductors))
+	} else if c := doc.Conductors[0]; math.Abs(c.Offset-2.6) > 0.2 || len(c.Route.Stations) < 25 {
+		t.Errorf("conductor 2 at offset %.2f m on %d traverses, want about 2.6 m on most of 31", c.Offset, len(c.Route.Stations))
+	} else {
+		for _, st := range c.Route.Stations {
+			if st.Used && st.Cover != nil && math.Abs(*st.Cover-0.70) > 0.05 {
+				t.Errorf("LV feeder cover %.3f m at %s, laid at 0.70 m", *st.Cover, st.Key)
 			}
 		}
 	}

@@ -41,6 +41,7 @@ type locateOptions struct {
 	referenceZ   float64
 	hasRefZ      bool
 	sensorHeight float64
+	groundSigma  float64
 	noise        float64
 	robust       bool
 	despike      bool
@@ -74,6 +75,7 @@ func (o *locateOptions) setFlags(fs *pflag.FlagSet) {
 	fs.StringVar(&o.coverCode, "cover-code", "", "the code or practice the minimum cover comes from, quoted in the report (\"NEC Table 300.5\")")
 	fs.Float64Var(&o.referenceZ, "reference-z", 0, "report depths below the ground surface at up = `Z` metres, instead of below the sensors' mean height")
 	fs.Float64Var(&o.sensorHeight, "sensor-height", 0, "the sensors were carried `H` metres above the ground (cover = depth - H)")
+	fs.Float64Var(&o.groundSigma, "ground-sigma", 0, "the ground level is known to `S` metres (one sigma) from the depth reference, e.g. how steadily the sensors were held above it; added to the cover sigmas (which otherwise cover the reading noise only)")
 	fs.Float64Var(&o.noise, "noise", 0, "reading noise per axis, `NT` nanotesla (default: estimated from the fits)")
 	fs.BoolVar(&o.robust, "robust", false, "down-weight outlying readings (Huber weights)")
 	fs.BoolVar(&o.despike, "despike", false, "remove spikes (Hampel filter) before fitting")
@@ -111,6 +113,9 @@ func (o *locateOptions) check(fs *pflag.FlagSet) error {
 	if o.sensorHeight < 0 || math.IsNaN(o.sensorHeight) || math.IsInf(o.sensorHeight, 0) {
 		return usageErrorf("--sensor-height %g: want a height in metres >= 0", o.sensorHeight)
 	}
+	if o.groundSigma < 0 || math.IsNaN(o.groundSigma) || math.IsInf(o.groundSigma, 0) {
+		return usageErrorf("--ground-sigma %g: want a length in metres >= 0", o.groundSigma)
+	}
 	if o.noise < 0 || math.IsNaN(o.noise) || math.IsInf(o.noise, 0) {
 		return usageErrorf("--noise %g: want a noise level in nT >= 0", o.noise)
 	}
@@ -130,6 +135,9 @@ func (o *locateOptions) check(fs *pflag.FlagSet) error {
 	hasHeight := o.sensorHeight > 0 || fs != nil && fs.Changed("sensor-height")
 	if o.minCover > 0 && !o.hasRefZ && !hasHeight {
 		return usageErrorf("--min-cover needs to know where the ground is: add --sensor-height H (sensors carried H m above ground) or --reference-z Z (ground at up = Z)")
+	}
+	if o.groundSigma > 0 && !o.hasRefZ && !hasHeight {
+		return usageErrorf("--ground-sigma is the uncertainty of the ground level: add --sensor-height H or --reference-z Z to say where the ground is")
 	}
 	if o.coverCode != "" && o.minCover == 0 {
 		return usageErrorf("--cover-code names where --min-cover comes from; give --min-cover too")
@@ -611,6 +619,7 @@ func buildDocument(o *locateOptions, sv *survey) (*report.Document, error) {
 		SensorHeight: o.sensorHeight,
 		MinCover:     o.minCover,
 		CoverCode:    o.coverCode,
+		GroundSigma:  o.groundSigma,
 		StepK:        o.stepK,
 		Noise:        o.noise,
 	})
