@@ -53,4 +53,17 @@
 // document. The minimum cover is whatever the user named: no single value is
 // law (US NEC Table 300.5 asks 600 mm for direct-burial cable up to 1000 V
 // in general locations; UK distribution practice 450-700 mm).
+//
+// # Further conductors
+//
+// The strongest source of each group makes the route. The other line
+// sources are linked from group to group into tracks (tracks.go): walking
+// the groups in route order, each source is placed by its signed offset
+// from the route's conductor (square to it, positive to the right looking
+// along increasing chainage) and joins the track whose predicted offset and
+// last depth are nearest, within a gate of max(1 m, 1.5 times the shallower
+// depth); a group gives a track at most one source. Tracks seen in at least
+// BuildSettings.TrackMinStations groups are numbered 2, 3, ... by
+// decreasing median current, analysed by their own route.Build and kept in
+// Document.Conductors; their findings carry Finding.Conductor.
 package report

@@ -106,6 +106,10 @@ func TestValidateErrors(t *testing.T) {
 		{"schema", func(d *Document) { d.SchemaVersion = 99 }, "schema_version 99 is not supported"},
 		{"depth ref", func(d *Document) { d.DepthReference.Kind = "sea level" }, `depth_reference.kind "sea level"`},
 		{"origin", func(d *Document) { d.Frame.Origin = &Origin{Lat: 152, Lon: 0} }, "not a latitude and longitude"},
+		{"ground sigma", func(d *Document) { d.DepthReference.GroundSigma = -0.02 }, "depth_reference.ground_sigma_m -0.02"},
+		{"conductor number", func(d *Document) { d.Conductors = []Track{{Number: 1}} }, "conductors[0].number 1"},
+		{"conductor twice", func(d *Document) { d.Conductors = []Track{{Number: 2}, {Number: 2}} }, "conductors[1].number 2"},
+		{"finding's conductor", func(d *Document) { d.Findings[0].Conductor = 3 }, "findings[0].conductor 3 names no conductor"},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {

@@ -49,11 +49,21 @@ func (d *Document) Validate() error {
 			}
 		}
 	}
+	tracks := map[int]bool{}
+	for i, c := range d.Conductors {
+		if c.Number < 2 || tracks[c.Number] {
+			return fmt.Errorf("report: conductors[%d].number %d: want a number from 2 up, each once (1 is the route's own conductor)", i, c.Number)
+		}
+		tracks[c.Number] = true
+	}
 	for i, f := range d.Findings {
 		switch f.Severity {
 		case SeverityWarning, SeverityCaution, SeverityInfo:
 		default:
 			return fmt.Errorf("report: findings[%d].severity %q is not warning, caution or info", i, f.Severity)
+		}
+		if f.Conductor != 0 && !tracks[f.Conductor] {
+			return fmt.Errorf("report: findings[%d].conductor %d names no conductor in conductors[]", i, f.Conductor)
 		}
 	}
 	return nil
