@@ -54,39 +54,16 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 			"these features unless told the frame."
 	}
 	if r := d.Route; r != nil && len(r.Stations) > 1 {
-		pts := make([][3]float64, len(r.Stations))
-		for i, s := range r.Stations {
-			pts[i] = s.Point
-		}
-		fc.Features = append(fc.Features, feature{
-			Type:     "Feature",
-			Geometry: d.line(pts),
-			Properties: map[string]any{
-				"feature":  "route",
-				"length_m": round(r.Length, 3),
-				"stations": len(r.Stations),
-			},
-		})
+		fc.Features = append(fc.Features, d.routeFeature(r, map[string]any{}))
 	}
 	for _, t := range d.Conductors {
 		if len(t.Route.Stations) < 2 {
 			continue
 		}
-		pts := make([][3]float64, len(t.Route.Stations))
-		for i, s := range t.Route.Stations {
-			pts[i] = s.Point
-		}
-		fc.Features = append(fc.Features, feature{
-			Type:     "Feature",
-			Geometry: d.line(pts),
-			Properties: map[string]any{
-				"feature":   "route",
-				"conductor": t.Number,
-				"length_m":  round(t.Route.Length, 3),
-				"stations":  len(t.Route.Stations),
-				"offset_m":  round(t.Offset, 3),
-			},
-		})
+		fc.Features = append(fc.Features, d.routeFeature(&t.Route, map[string]any{
+			"conductor": t.Number,
+			"offset_m":  round(t.Offset, 3),
+		}))
 	}
 	for _, g := range d.Groups {
 		for i, s := range g.Sources {
@@ -224,3 +201,16 @@ func along(p, dir [3]float64, t float64) [3]float64 {
 
 // round returns v rounded to prec decimals as a JSON number.
 func round(v float64, prec int) json.Number { return json.Number(fix(v, prec)) }
+
+// routeFeature is a route's stations as a LineString, with props and the
+// route's feature, length and station count as properties.
+func (d *Document) routeFeature(r *Route, props map[string]any) feature {
+	pts := make([][3]float64, len(r.Stations))
+	for i, s := range r.Stations {
+		pts[i] = s.Point
+	}
+	props["feature"] = "route"
+	props["length_m"] = round(r.Length, 3)
+	props["stations"] = len(r.Stations)
+	return feature{Type: "Feature", Geometry: d.line(pts), Properties: props}
+}

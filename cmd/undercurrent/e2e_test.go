@@ -60,21 +60,7 @@ type resultDoc struct {
 		OK         bool        `json:"ok"`
 		Sources    []docSource `json:"sources"`
 	} `json:"groups"`
-	Findings []struct {
-		Kind      string     `json:"kind"`
-		Severity  string     `json:"severity"`
-		From      float64    `json:"chainage_from_m"`
-		To        float64    `json:"chainage_to_m"`
-		Position  [3]float64 `json:"position_m"`
-		Groups    []string   `json:"groups"`
-		Message   string     `json:"message"`
-		Conductor int        `json:"conductor"`
-		Values    []struct {
-			Name  string  `json:"name"`
-			Value float64 `json:"value"`
-			Sigma float64 `json:"sigma"`
-		} `json:"values"`
-	} `json:"findings"`
+	Findings   []docFinding `json:"findings"`
 	Conductors []struct {
 		Number int     `json:"number"`
 		Offset float64 `json:"offset_m"`
@@ -86,6 +72,23 @@ type resultDoc struct {
 			} `json:"stations"`
 		} `json:"route"`
 	} `json:"conductors"`
+}
+
+// docFinding is a finding as the result document writes it.
+type docFinding struct {
+	Kind      string     `json:"kind"`
+	Severity  string     `json:"severity"`
+	From      float64    `json:"chainage_from_m"`
+	To        float64    `json:"chainage_to_m"`
+	Position  [3]float64 `json:"position_m"`
+	Groups    []string   `json:"groups"`
+	Message   string     `json:"message"`
+	Conductor int        `json:"conductor"`
+	Values    []struct {
+		Name  string  `json:"name"`
+		Value float64 `json:"value"`
+		Sigma float64 `json:"sigma"`
+	} `json:"values"`
 }
 
 type docSource struct {

@@ -38,21 +38,7 @@ type trackDoc struct {
 			Stations []trackStation `json:"stations"`
 		} `json:"route"`
 	} `json:"conductors"`
-	Findings []struct {
-		Kind      string     `json:"kind"`
-		Severity  string     `json:"severity"`
-		From      float64    `json:"chainage_from_m"`
-		To        float64    `json:"chainage_to_m"`
-		Position  [3]float64 `json:"position_m"`
-		Groups    []string   `json:"groups"`
-		Message   string     `json:"message"`
-		Conductor int        `json:"conductor"`
-		Values    []struct {
-			Name  string  `json:"name"`
-			Value float64 `json:"value"`
-			Sigma float64 `json:"sigma"`
-		} `json:"values"`
-	} `json:"findings"`
+	Findings []docFinding `json:"findings"`
 }
 
 type trackStation struct {

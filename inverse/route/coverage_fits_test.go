@@ -2,7 +2,6 @@ package route
 
 import (
 	"fmt"
-	"math"
 	"math/rand/v2"
 	"testing"
 
@@ -75,41 +74,12 @@ func TestStepSigmaMonteCarloFits(t *testing.T) {
 	for _, noise := range []float64{5, 50} { // nT per axis
 		t.Run(fmt.Sprintf("%g nT", noise), func(t *testing.T) {
 			rng := rand.New(rand.NewPCG(3, uint64(noise)))
-			var size, loc []float64
-			var sigSum, errSum float64
-			missed := 0
-			for range mcDraws {
+			size, loc, missed := stepZ(t, fmt.Sprintf("%g nT", noise), d, mcDraws, func() ([]Station, float64) {
 				xf := 105 + 15*rng.Float64()
-				r, err := Build(fittedRoute(t, rng, xf, i0, d, noise), nil)
-				if err != nil {
-					t.Fatal(err)
-				}
-				found := false
-				for _, f := range r.Findings {
-					if f.Kind != KindCurrentStep || !(f.From <= xf && xf <= f.To) {
-						continue
-					}
-					found = true
-					v := f.Values[0]
-					size = append(size, (v.Value+d)/v.Sigma)
-					sigSum += v.Sigma
-					errSum += (v.Value + d) * (v.Value + d)
-					for _, w := range f.Values {
-						if w.Name == "location (chainage)" {
-							loc = append(loc, (w.Value-xf)/w.Sigma)
-						}
-					}
-					break
-				}
-				if !found {
-					missed++
-				}
-			}
+				return fittedRoute(t, rng, xf, i0, d, noise), xf
+			})
 			if missed > 0 {
 				t.Errorf("the step was missed in %d of %d draws", missed, mcDraws)
-			}
-			if len(size) > 0 {
-				t.Logf("mean step sigma %.3g A, RMS error %.3g A", sigSum/float64(len(size)), math.Sqrt(errSum/float64(len(size))))
 			}
 			checkCoverage(t, "size", size, true)
 			checkCoverage(t, "location", loc, true)

@@ -102,9 +102,17 @@ func (s mcStats) String() string {
 // of the location (the latter only where a location is reported).
 func runMC(t testing.TB, sc *mcScenario, draws int, seed uint64) (size, loc []float64, missed int) {
 	rng := rand.New(rand.NewPCG(seed, 0x5eed))
+	return stepZ(t, sc.name, sc.d, draws, func() ([]Station, float64) { return sc.route(rng) })
+}
+
+// stepZ builds draws routes from next (the stations and the true fault
+// chainage of each, with d amperes lost there) and returns the z of the
+// reported step's size and location (the latter only where a location is
+// reported), and how many steps were missed.
+func stepZ(t testing.TB, name string, d float64, draws int, next func() ([]Station, float64)) (size, loc []float64, missed int) {
 	var sigSum, errSum float64
 	for range draws {
-		st, xf := sc.route(rng)
+		st, xf := next()
 		r, err := Build(st, nil)
 		if err != nil {
 			t.Fatal(err)
@@ -116,9 +124,9 @@ func runMC(t testing.TB, sc *mcScenario, draws int, seed uint64) (size, loc []fl
 			}
 			found = true
 			v := f.Values[0]
-			size = append(size, (v.Value+sc.d)/v.Sigma)
+			size = append(size, (v.Value+d)/v.Sigma)
 			sigSum += v.Sigma
-			errSum += (v.Value + sc.d) * (v.Value + sc.d)
+			errSum += (v.Value + d) * (v.Value + d)
 			for _, w := range f.Values {
 				if w.Name == "location (chainage)" {
 					loc = append(loc, (w.Value-xf)/w.Sigma)
@@ -131,7 +139,7 @@ func runMC(t testing.TB, sc *mcScenario, draws int, seed uint64) (size, loc []fl
 		}
 	}
 	if len(size) > 0 {
-		t.Logf("%s: mean step sigma %.3g A, RMS error %.3g A", sc.name, sigSum/float64(len(size)), math.Sqrt(errSum/float64(len(size))))
+		t.Logf("%s: mean step sigma %.3g A, RMS error %.3g A", name, sigSum/float64(len(size)), math.Sqrt(errSum/float64(len(size))))
 	}
 	return size, loc, missed
 }
