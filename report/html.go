@@ -55,6 +55,7 @@ type view struct {
 	Groups     []groupRow
 	FitNotes   []string
 	DepthRef   string
+	CoverSigma string // what the cover sigmas include; empty without cover
 	FrameText  string
 	SignalText string
 	Settings   [][2]string
@@ -94,6 +95,7 @@ func newView(d *Document) (*view, error) {
 		v.Title = "Buried conductor estimate"
 	}
 	v.DepthRef = depthRefText(d)
+	v.CoverSigma = coverSigmaText(d)
 	v.FrameText = "local east, north, up, metres"
 	if o := d.Frame.Origin; o != nil {
 		v.FrameText += fmt.Sprintf("; origin at WGS84 %.7f°, %.7f°, %.2f m", o.Lat, o.Lon, o.H)
@@ -135,24 +137,27 @@ func newView(d *Document) (*view, error) {
 
 func depthRefText(d *Document) string {
 	if d.DepthReference.Kind == DepthBelowGround {
-		return fmt.Sprintf("below the ground surface given (up = %.2f m)", d.DepthReference.Z) + groundSigmaText(d)
+		return fmt.Sprintf("below the ground surface given (up = %.2f m)", d.DepthReference.Z)
 	}
 	s := fmt.Sprintf("below the sensors' mean height (up = %.2f m)", d.DepthReference.Z)
 	if h := d.DepthReference.SensorHeight; h > 0 {
 		s += fmt.Sprintf("; sensors %.2f m above ground, so cover = depth − %.2f m", h, h)
 	} else {
 		s += "; sensor height above ground not given, so cover is not computed"
-		return s
 	}
-	return s + groundSigmaText(d)
+	return s
 }
 
-// groundSigmaText says what the cover sigmas include.
-func groundSigmaText(d *Document) string {
-	if g := d.DepthReference.GroundSigma; g > 0 {
-		return fmt.Sprintf("; cover sigmas include %s m (one sigma) for the ground level", num(g))
+// coverSigmaText says what the cover sigmas include; empty when cover is not
+// computed.
+func coverSigmaText(d *Document) string {
+	if d.DepthReference.Kind != DepthBelowGround && d.DepthReference.SensorHeight <= 0 {
+		return ""
 	}
-	return "; cover sigmas cover the reading noise only (no uncertainty of the ground level was given)"
+	if g := d.DepthReference.GroundSigma; g > 0 {
+		return fmt.Sprintf("the fitted depth sigmas and %s m (one sigma) for the ground level, in quadrature", num(g))
+	}
+	return "the fitted depth sigmas only, which cover the reading noise; no uncertainty of the ground level was given"
 }
 
 func valueText(x Value) string {
@@ -392,7 +397,7 @@ func (v *view) summarise() {
 			line := fmt.Sprintf("Depth %s is %s to %s m (shallowest at chainage %.0f m)",
 				shortRef(d), num(lo.Depth), num(hi.Depth), lo.Chainage)
 			if c, ok := d.cover(lo.Depth); ok {
-				line += fmt.Sprintf("; least cover %s ± %s m", num(c), num(lo.DepthSigma))
+				line += fmt.Sprintf("; least cover %s ± %s m", num(c), num(math.Hypot(lo.DepthSigma, d.DepthReference.GroundSigma)))
 			}
 			v.Headline = append(v.Headline, line+".")
 		}

@@ -160,3 +160,29 @@ func TestWriteFilesNotADirectory(t *testing.T) {
 		t.Errorf("error %v", err)
 	}
 }
+
+// TestHTMLGroundSigma: the crew report's summary gives the least cover with the ground
+// level's uncertainty in quadrature, and says what the cover sigmas include.
+func TestHTMLGroundSigma(t *testing.T) {
+	for _, tc := range []struct {
+		ground     float64
+		cover, says string
+	}{
+		{0, "least cover 0.545 ± 0.012 m", "the fitted depth sigmas only, which cover the reading noise"},
+		// The fixture's shallowest station has a depth sigma of 0.012 m:
+		// hypot(0.012, 0.05) = 0.0514, printed to two significant digits.
+		{0.05, "least cover 0.545 ± 0.051 m", "and 0.050 m (one sigma) for the ground level"},
+	} {
+		d := fenwickLane(false)
+		d.DepthReference.GroundSigma = tc.ground
+		var b bytes.Buffer
+		if err := WriteHTML(&b, d); err != nil {
+			t.Fatal(err)
+		}
+		for _, want := range []string{tc.cover, tc.says} {
+			if !strings.Contains(b.String(), want) {
+				t.Errorf("ground sigma %g: the report does not say %q", tc.ground, want)
+			}
+		}
+	}
+}

@@ -147,6 +147,7 @@ footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rul
 <dt>Signal</dt><dd>{{.SignalText}}</dd>
 <dt>Coordinates</dt><dd>{{.FrameText}}</dd>
 <dt>Depth reference</dt><dd>{{.DepthRef}}</dd>
+{{with .CoverSigma}}<dt>Cover uncertainty</dt><dd>{{.}}</dd>{{end}}
 <dt>Minimum cover</dt><dd>{{with .D.MinCover}}{{printf "%.2f" .Depth}} m{{with .Code}} ({{.}}){{else}} (no code named){{end}}{{else}}not given: no cover check (published codes differ by country){{end}}</dd>
 {{range .Settings}}<dt>{{index . 0}}</dt><dd>{{index . 1}}</dd>
 {{end}}</dl>
