@@ -165,7 +165,7 @@ func TestWriteFilesNotADirectory(t *testing.T) {
 // level's uncertainty in quadrature, and says what the cover sigmas include.
 func TestHTMLGroundSigma(t *testing.T) {
 	for _, tc := range []struct {
-		ground     float64
+		ground      float64
 		cover, says string
 	}{
 		{0, "least cover 0.545 ± 0.012 m", "the fitted depth sigmas only, which cover the reading noise"},
