@@ -201,3 +201,33 @@ func TestE2ESecondConductorFault(t *testing.T) {
 		t.Errorf("%d steps on conductor 2, want 1", steps)
 	}
 }
+
+// TestLocateSummaryConductors: locate's table for a person says which conductor
+// along the route each source belongs to when further conductors are followed.
+func TestLocateSummaryConductors(t *testing.T) {
+	_, path := scenario(t, "two-conductors-fault.toml")
+	dir := t.TempDir()
+	log := filepath.Join(dir, "log.csv")
+	mustCLI(t, "simulate", path, "-o", log)
+	out := mustCLI(t, "locate", "--group-by", "group", log)
+	lines := strings.Split(out, "\n")
+	var header string
+	ones, twos := 0, 0
+	for _, l := range lines {
+		f := strings.Fields(l)
+		switch {
+		case strings.HasPrefix(l, "group "):
+			header = l
+		case len(f) > 0 && f[len(f)-1] == "1" && strings.Contains(l, "±"):
+			ones++
+		case len(f) > 0 && f[len(f)-1] == "2" && strings.Contains(l, "±"):
+			twos++
+		}
+	}
+	if !strings.HasSuffix(strings.TrimSpace(header), "conductor") {
+		t.Errorf("table header %q has no conductor column", header)
+	}
+	if ones != 12 || twos != 12 {
+		t.Errorf("%d sources marked conductor 1 and %d marked 2, want 12 each (12 traverses):\n%s", ones, twos, out)
+	}
+}

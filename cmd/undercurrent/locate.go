@@ -696,7 +696,14 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 		ref = fmt.Sprintf("below the ground at up = %g m", doc.DepthReference.Z)
 	}
 	fmt.Fprintf(w, "depths are %s; currents %s, one-sigma uncertainties\n", ref, map[bool]string{true: "RMS with phase", false: "DC"}[doc.Signal.Mode == report.SignalAC])
-	fmt.Fprintf(w, "%-8s %10s %18s %16s %9s\n", "group", "chainage", "current (A)", "depth (m)", "rms (nT)")
+	tracks := len(doc.Conductors) > 0
+	fmt.Fprintf(w, "%-8s %10s %18s %16s %9s", "group", "chainage", "current (A)", "depth (m)", "rms (nT)")
+	if tracks {
+		// Which conductor along the route each source belongs to: 1 is the
+		// route's own, 2, 3, ... the further ones followed (doc.Conductors).
+		fmt.Fprintf(w, " %9s", "conductor")
+	}
+	fmt.Fprintln(w)
 	for _, g := range doc.Groups {
 		key := g.Key
 		if key == "" {
@@ -725,6 +732,16 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 			note := ""
 			if i == 0 && g.Problem != "" {
 				note = "  " + g.Problem
+			}
+			if tracks {
+				c := "-"
+				switch {
+				case i == 0 && s.Kind != report.KindDipole:
+					c = "1"
+				case s.Conductor > 0:
+					c = strconv.Itoa(s.Conductor)
+				}
+				note = fmt.Sprintf(" %9s", c) + note
 			}
 			fmt.Fprintf(w, "%-8s %10s %18s %16s %9.3g%s\n", k, ch, cur, fmt.Sprintf("%.2f ± %.2g", s.Depth, s.DepthSigma), g.RMS, note)
 		}
