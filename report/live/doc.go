@@ -47,6 +47,32 @@
 // broker's deduplication stores a window published twice (holder died
 // between publishing and checkpointing) only once.
 //
+// # Where a new asset starts reading
+//
+// An asset without a checkpoint (its first start, or an asset newly added
+// to the site file) starts where its "start" setting says, or the
+// [service] "start" when the asset gives none:
+//
+//	"retained"      everything UC_DATA still holds (the default; a
+//	                backfill of up to data_retention before live windows)
+//	"new"           only batches stored after the first start
+//	"24h", "90m"    batches stored up to that long before the first start
+//	RFC 3339 time   batches stored at or after that time (not in the future)
+//
+// These are the choices broker.Subscribe offers (All, new only, From) and
+// map to the JetStream deliver policies DeliverAllPolicy,
+// DeliverNewPolicy and DeliverByStartTimePolicy. For any start but
+// "retained" the worker resolves the choice once, at the first start, to
+// a stream sequence (the stream's last sequence plus one for "new"; the
+// asset's first message stored at or after the time otherwise, looked up
+// by the server) and writes it at once as the asset's first checkpoint,
+// so that a restart or takeover before the first window resumes from the
+// same place. Once a checkpoint exists it always wins and the setting is
+// ignored; delete the checkpoint (key "checkpoint.<asset>" in uc_state)
+// to apply a changed start. Times are the broker's storage times, i.e.
+// when the batches reached the broker, not the sensor clocks; the first
+// window may hold only the part of its samples stored after the start.
+//
 // # Alarms
 //
 // over-current (|I| above max_current), imbalance (|sum of the balance

@@ -51,6 +51,9 @@ type ServiceConfig struct {
 	// MaxMessageBytes is the largest sensor message accepted; larger ones
 	// go to uc.dlq.oversized. 0 means 1 MiB.
 	MaxMessageBytes int `toml:"max_message_bytes"`
+	// Start is where an asset without a checkpoint starts reading, for
+	// the assets that do not give their own; unset means "retained".
+	Start Start `toml:"start"`
 }
 
 // BrokerConfig is the [broker] table.
@@ -95,6 +98,10 @@ type AssetConfig struct {
 	// geometry from the first Commission of data, store it, then hold it).
 	Model      string   `toml:"model"`
 	Commission Duration `toml:"commission"`
+	// Start is where the asset starts reading while it has no checkpoint
+	// (see Start); unset means the [service] value. After validation it
+	// is always set.
+	Start Start `toml:"start"`
 	// Noise is the sensor noise per sample, nT rms; 0 estimates it from
 	// the fit residuals.
 	Noise      float64           `toml:"noise"`
@@ -175,7 +182,7 @@ func ParseSite(name string, data []byte) (*Site, error) {
 	if err != nil {
 		var pe toml.ParseError
 		if errors.As(err, &pe) {
-			return nil, fmt.Errorf("live: %s:%d:%d: %s", name, pe.Position.Line, pe.Position.Col, pe.Message)
+			return nil, fmt.Errorf("live: %s:%d:%d: %s%s", name, pe.Position.Line, pe.Position.Col, startOwner(pe.LastKey, data), pe.Message)
 		}
 		return nil, fmt.Errorf("live: %s: %w", name, err)
 	}
@@ -235,6 +242,9 @@ func (s *Site) validate() error {
 			return fmt.Errorf("broker.users[%d]: name and password are required", i+1)
 		}
 	}
+	if s.Service.Start.kind == startUnset {
+		s.Service.Start = Start{kind: StartRetained}
+	}
 	if len(s.Assets) == 0 {
 		return fmt.Errorf("no [[asset]] tables")
 	}
@@ -248,6 +258,9 @@ func (s *Site) validate() error {
 			return fmt.Errorf("asset %q listed twice", a.Name)
 		}
 		seen[a.Name] = true
+		if a.Start.kind == startUnset {
+			a.Start = s.Service.Start
+		}
 		if err := a.validate(filepath.Dir(s.Path)); err != nil {
 			return fmt.Errorf("asset %q: %w", a.Name, err)
 		}
@@ -352,6 +365,150 @@ func (a *AssetConfig) validate(dir string) error {
 		}
 	}
 	return nil
+}
+
+// StartKind says which kind of start point a Start is.
+type StartKind int
+
+// The kinds of Start.
+const (
+	startUnset    StartKind = iota // not given in the file
+	StartRetained                  // everything still retained in the stream
+	StartNew                       // only data stored after the first start
+	StartAt                        // data stored at or after a given time
+	StartBack                      // data stored within a duration before the first start
+)
+
+// Start is where an asset's worker begins reading UC_DATA when the asset
+// has no checkpoint (its first start, or an asset newly added to the site
+// file). Once a checkpoint exists it always wins. In the site file it is
+// written
+//
+//	start = "retained"              # all data the stream still holds (default)
+//	start = "new"                   # only data stored after the first start
+//	start = "24h"                   # data stored up to 24 h before the first start
+//	start = "2026-12-01T06:00:00Z"  # data stored from this RFC 3339 time on
+//
+// Times are the broker's storage times of the sensor batches (when they
+// reached the broker), not the sensor clocks.
+type Start struct {
+	kind StartKind
+	at   time.Time     // StartAt
+	back time.Duration // StartBack
+	text string        // as written, for durations and times
+}
+
+// ParseStart parses a start value as written in the site file. Durations
+// must be positive; times must not lie in the future.
+func ParseStart(v string) (Start, error) {
+	switch v {
+	case "retained":
+		return Start{kind: StartRetained}, nil
+	case "new":
+		return Start{kind: StartNew}, nil
+	}
+	if d, err := time.ParseDuration(v); err == nil {
+		if d <= 0 {
+			return Start{}, fmt.Errorf("start %q: a duration back from the first start must be positive", v)
+		}
+		return Start{kind: StartBack, back: d, text: v}, nil
+	}
+	if t, err := time.Parse(time.RFC3339Nano, v); err == nil {
+		if t.After(time.Now()) {
+			return Start{}, fmt.Errorf("start %q is in the future; use \"new\" to read only data from now on", v)
+		}
+		return Start{kind: StartAt, at: t, text: v}, nil
+	}
+	return Start{}, fmt.Errorf("start %q: want \"retained\", \"new\", a duration such as \"24h\" or an RFC 3339 time such as \"2026-12-01T06:00:00Z\"", v)
+}
+
+// Kind returns the kind of start point (StartRetained for an unset Start).
+func (s Start) Kind() StartKind {
+	if s.kind == startUnset {
+		return StartRetained
+	}
+	return s.kind
+}
+
+// String writes the start as the site file does.
+func (s Start) String() string {
+	if s.text != "" {
+		return s.text
+	}
+	switch s.kind {
+	case StartNew:
+		return "new"
+	case StartAt:
+		return s.at.Format(time.RFC3339Nano)
+	case StartBack:
+		return s.back.String()
+	}
+	return "retained"
+}
+
+// UnmarshalText parses a site-file value with ParseStart.
+func (s *Start) UnmarshalText(b []byte) error {
+	v, err := ParseStart(string(b))
+	if err != nil {
+		return err
+	}
+	*s = v
+	return nil
+}
+
+// MarshalText writes the start as String does.
+func (s Start) MarshalText() ([]byte, error) { return []byte(s.String()), nil }
+
+// source maps the start to the broker's subscription choices (see
+// broker.SourceSettings): All for "retained", From for a time (a
+// duration counts back from first, the asset's first start), neither for
+// "new", which follows only messages stored from now on.
+func (s Start) source(first time.Time) broker.SourceSettings {
+	switch s.kind {
+	case StartNew:
+		return broker.SourceSettings{}
+	case StartAt:
+		return broker.SourceSettings{From: s.at}
+	case StartBack:
+		return broker.SourceSettings{From: first.Add(-s.back)}
+	}
+	return broker.SourceSettings{All: true}
+}
+
+// startOwner names what a bad start value belongs to ("service: " or
+// `asset "name": `) for a parse error at lastKey, so that the message
+// names the asset as well as the line. Other keys give "".
+func startOwner(lastKey string, data []byte) string {
+	switch lastKey {
+	case "service.start":
+		return "service: "
+	case "asset.start":
+	default:
+		return ""
+	}
+	// The decoder stops at the first bad value in file order; find the
+	// asset holding it in a second, lenient decode of the same text.
+	var raw struct {
+		Assets []struct {
+			Name  string `toml:"name"`
+			Start any    `toml:"start"`
+		} `toml:"asset"`
+	}
+	if _, err := toml.Decode(string(data), &raw); err != nil {
+		return ""
+	}
+	for i, a := range raw.Assets {
+		if a.Start == nil {
+			continue
+		}
+		if _, err := ParseStart(fmt.Sprint(a.Start)); err != nil {
+			if a.Name == "" {
+				return fmt.Sprintf("asset %d: ", i+1)
+			}
+			return fmt.Sprintf("asset %q: ", a.Name)
+		}
+	}
+	return ""
 }
 
 // Asset returns the asset called name, or nil.

@@ -25,6 +25,9 @@ type checkpoint struct {
 	LastSeq   uint64             `json:"last_seq"`   // last UC_DATA sequence examined
 	Prev      map[string]float64 `json:"prev"`       // last currents, for the step alarm
 	Worker    string             `json:"worker"`
+	// Start records the site-file start that placed the first checkpoint
+	// (empty when the asset began with everything retained).
+	Start string `json:"start,omitempty"`
 }
 
 func checkpointKey(asset string) string { return "checkpoint." + asset }
@@ -74,6 +77,8 @@ func (w *assetWorker) run(ctx context.Context) error {
 		}
 	} else if !errors.Is(err, jetstream.ErrKeyNotFound) {
 		return fmt.Errorf("live: asset %s: checkpoint: %w", w.asset.Name, err)
+	} else if err := w.placeStart(bg); err != nil {
+		return err
 	}
 	if err := w.loadGeometry(bg); err != nil {
 		return err
@@ -128,6 +133,96 @@ func (w *assetWorker) run(ctx context.Context) error {
 			}
 		}
 	}
+}
+
+// wallClock is the time of an asset's first start (a variable so that
+// tests can place it).
+var wallClock = time.Now
+
+// placeStart applies the asset's start setting when it has no checkpoint.
+// "retained" leaves today's path (read everything the stream holds). Any
+// other start is resolved once, now, to a UC_DATA sequence, mirroring the
+// deliver policies broker.Subscribe uses for the same choices: "new" is
+// the stream's last sequence plus one (DeliverNewPolicy), a time or a
+// duration back from now is the asset's first message stored at or after
+// that time (DeliverByStartTimePolicy; the server looks it up). The
+// sequence is written as the asset's first checkpoint straight away, so a
+// restart or takeover before the first window resumes from the same
+// place instead of resolving "new" or "24h" again.
+func (w *assetWorker) placeStart(ctx context.Context) error {
+	start := w.asset.Start
+	if start.Kind() == StartRetained {
+		return nil
+	}
+	fail := func(err error) error {
+		return fmt.Errorf("live: asset %s: start %q: %w", w.asset.Name, start, err)
+	}
+	ctx, cancel := context.WithTimeout(ctx, 10*time.Second)
+	defer cancel()
+	st, err := w.svc.stores.JS.Stream(ctx, broker.StreamData)
+	if err != nil {
+		return fail(err)
+	}
+	info, err := st.Info(ctx)
+	if err != nil {
+		return fail(err)
+	}
+	seq := info.State.LastSeq + 1
+	if set := start.source(wallClock()); !set.From.IsZero() {
+		at, err := w.firstSeqAt(ctx, set.From)
+		if err != nil {
+			return fail(err)
+		}
+		if at > 0 {
+			seq = at
+		}
+	}
+	w.asm.lastSeq = seq - 1
+	w.ck.Start = start.String()
+	w.log.Info("no checkpoint: starting from the site file's start", "start", w.ck.Start, "seq", seq)
+	return w.saveCheckpoint()
+}
+
+// firstSeqAt returns the sequence of the asset's first UC_DATA message
+// stored at or after t, or 0 when there is none. It asks the stream's
+// message-get API with start_time and next_by_subj, which resolves the
+// time as a DeliverByStartTimePolicy consumer would (the client library
+// does not expose start_time).
+func (w *assetWorker) firstSeqAt(ctx context.Context, t time.Time) (uint64, error) {
+	req, err := json.Marshal(struct {
+		StartTime time.Time `json:"start_time"`
+		NextFor   string    `json:"next_by_subj"`
+		NoHeaders bool      `json:"no_hdr"`
+	}{t.UTC(), broker.DataFilter(w.asset.Name), true})
+	if err != nil {
+		return 0, err
+	}
+	m, err := w.svc.nc.RequestWithContext(ctx, jetstream.DefaultAPIPrefix+"STREAM.MSG.GET."+broker.StreamData, req)
+	if err != nil {
+		return 0, fmt.Errorf("message lookup by time: %w", err)
+	}
+	var resp struct {
+		Message *struct {
+			Seq uint64 `json:"seq"`
+		} `json:"message"`
+		Error *struct {
+			Code        int    `json:"code"`
+			ErrCode     int    `json:"err_code"`
+			Description string `json:"description"`
+		} `json:"error"`
+	}
+	if err := json.Unmarshal(m.Data, &resp); err != nil {
+		return 0, fmt.Errorf("message lookup by time: %w", err)
+	}
+	switch {
+	case resp.Error != nil && resp.Error.ErrCode == 10037: // no message found
+		return 0, nil
+	case resp.Error != nil:
+		return 0, fmt.Errorf("message lookup by time: %s (code %d)", resp.Error.Description, resp.Error.ErrCode)
+	case resp.Message == nil || resp.Message.Seq == 0:
+		return 0, fmt.Errorf("message lookup by time: empty answer")
+	}
+	return resp.Message.Seq, nil
 }
 
 func (w *assetWorker) tickEvery() time.Duration {
