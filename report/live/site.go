@@ -1,6 +1,7 @@
 package live
 
 import (
+	"encoding"
 	"errors"
 	"fmt"
 	"math"
@@ -501,7 +502,12 @@ func startOwner(lastKey string, data []byte) string {
 		if a.Start == nil {
 			continue
 		}
-		if _, err := ParseStart(fmt.Sprint(a.Start)); err != nil {
+		v := fmt.Sprint(a.Start)
+		if tm, ok := a.Start.(encoding.TextMarshaler); ok { // an unquoted TOML date-time
+			b, _ := tm.MarshalText()
+			v = string(b)
+		}
+		if _, err := ParseStart(v); err != nil {
 			if a.Name == "" {
 				return fmt.Sprintf("asset %d: ", i+1)
 			}

@@ -278,6 +278,7 @@ func TestStartRefused(t *testing.T) {
 		{"a number", strings.Replace(startSite("", ""), `window = "500ms"`, "window = \"500ms\"\nstart = 24", 1), "start = 24", []string{`asset "fenwick-lane": start "24": want`}},
 		{"service default", startSite("sometime", ""), `start = "sometime"`, []string{`service: start "sometime": want`}},
 		{"second asset", secondBad, `start = "last tuesday"`, []string{`asset "kestrel-moor": start "last tuesday"`}},
+		{"second asset after an unquoted date-time", strings.Replace(secondBad, `start = "12h"`, "start = 2026-12-01T06:00:00Z", 1), `start = "last tuesday"`, []string{`asset "kestrel-moor": start "last tuesday"`}},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			_, err := ParseSite("harrow-fen.toml", []byte(tc.text))
@@ -321,5 +322,14 @@ func TestExampleSiteStarts(t *testing.T) {
 	s := harrowFen(t)
 	if got := [3]string{s.Service.Start.String(), s.Asset("fenwick-lane").Start.String(), s.Asset("kestrel-moor").Start.String()}; got != [3]string{"retained", "retained", "1h"} {
 		t.Errorf("starts (service, fenwick-lane, kestrel-moor) = %q", got)
+	}
+}
+
+// A TOML date-time may be written unquoted.
+func TestStartUnquotedDateTime(t *testing.T) {
+	s := testSite(t, strings.Replace(testSiteText, `window = "500ms"`, "window = \"500ms\"\nstart = 2026-12-01T06:00:00Z", 1))
+	a := s.Assets[0].Start
+	if a.Kind() != StartAt || !a.source(time.Now()).From.Equal(time.Date(2026, 12, 1, 6, 0, 0, 0, time.UTC)) {
+		t.Errorf("start = 2026-12-01T06:00:00Z read as %v (kind %d)", a, a.Kind())
 	}
 }
