@@ -34,8 +34,14 @@ type Window struct {
 	B      [3]complex128 // complex RMS field per axis, nT
 	Sigma  [3]float64    // one-sigma of |B| per axis from the fit residuals, nT
 	Freq   float64       // Hz used (given or estimated)
-	Group  string        // group of the samples (windows never straddle groups)
-	N      int           // samples in the window
+	// FreqSigma is the one-sigma of an estimated Freq, Hz: sqrt(s²/q)/2π,
+	// with s² the residual variance of the fitted axis (n - p - 1 degrees
+	// of freedom) and q the four-parameter fit's normal-matrix entry for
+	// the frequency once the linear parameters are eliminated (the
+	// linearised least-squares covariance). Zero when Freq was given.
+	FreqSigma float64
+	Group     string // group of the samples (windows never straddle groups)
+	N         int    // samples in the window
 }
 
 // DemodSettings controls Demodulate. A nil *DemodSettings or a zero field
@@ -392,11 +398,13 @@ type demodulator struct {
 	outBand      int
 	outLo, outHi float64
 	firstOut     string
-	// scratch
+	// scratch, reused from window to window
 	xty  []float64
 	beta []float64
-	ts   []float64
-	ys   []float64
+	fit  *freqFit  // the four-parameter fit (EstimateFreq)
+	gen  *template // the basis of a window that is not on the shared grid
+	gram []float64 // p×p normal matrix of gen
+	chol []float64 // its Cholesky factor
 }
 
 // uniform reports whether rows [lo, hi) sit on the template's time grid
@@ -442,11 +450,21 @@ func (d *demodulator) window(lo, hi int) error {
 	}
 	w.Travel = halfTravel(c, lo, hi, w.Pos)
 	tpl := d.tpl
+	fitAxis, fitQ := -1, 0.0
 	if set.EstimateFreq {
-		f, err := d.estimateWindowFreq(lo, hi)
+		if d.fit == nil {
+			d.fit = newFreqFit(set.Harmonics, set.Drift)
+		}
+		if k := d.fit.load(c.Time[lo:hi], [3][]float64{c.B[0][lo:hi], c.B[1][lo:hi], c.B[2][lo:hi]}); k >= 0 {
+			return c.badValue(k, lo, hi)
+		}
+		// The four-parameter fit (IEEE Std 1057 / 1241) from the nominal
+		// frequency on the axis with the largest amplitude there.
+		f, axis, _, q, err := d.fit.fit(c.Time[lo:hi], set.Freq, 30)
 		if err != nil {
 			return fmt.Errorf("calibrate: demodulate: window at rows %d-%d (t = %.6f s): %w", lo, hi-1, t0, err)
 		}
+		fitAxis, fitQ = axis, q
 		w.Freq = f
 		if math.Abs(f-set.Freq) > set.Band {
 			if d.outBand == 0 {
@@ -525,6 +543,9 @@ func (d *demodulator) window(lo, hi int) error {
 		}
 		rss := math.Max(yy-fitted, 0)
 		s2 := rss / dof
+		if k == fitAxis && fitQ > 0 {
+			w.FreqSigma = math.Sqrt(rss/(dof-1)/fitQ) / (2 * math.Pi)
+		}
 		a, b := beta[0], beta[1]
 		w.B[k] = localToAbsolute(a, b, w.Freq, t0, 1)
 		amp := math.Hypot(a, b)
@@ -548,54 +569,52 @@ func (d *demodulator) window(lo, hi int) error {
 	return nil
 }
 
-// generalTemplate builds the basis from the window's own timestamps.
+// generalTemplate builds the basis from the window's own timestamps, in
+// buffers reused from window to window (the template is valid until the
+// next call).
 func (d *demodulator) generalTemplate(lo, hi int, freq float64) (*template, error) {
 	t := d.c.Time[lo:hi]
-	p := 3 + 2*len(d.set.Harmonics)
-	if d.set.Drift {
-		p++
+	n, p := hi-lo, d.tpl.p
+	tp := d.gen
+	if tp == nil {
+		tp = &template{p: p, basis: make([][]float64, p), ginv: make([]float64, p*p), harmonics: d.set.Harmonics, drift: d.set.Drift}
+		d.gen = tp
+		d.gram = make([]float64, p*p)
+		d.chol = make([]float64, p*p)
 	}
-	tp := &template{n: hi - lo, p: p, freq: freq}
-	tp.basis = make([][]float64, p)
+	if cap(tp.basis[0]) < n {
+		for j := range tp.basis {
+			tp.basis[j] = make([]float64, n)
+		}
+	}
 	for j := range tp.basis {
-		tp.basis[j] = make([]float64, hi-lo)
+		tp.basis[j] = tp.basis[j][:n]
 	}
-	row := make([]float64, p)
-	w := 2 * math.Pi * freq
-	for k, tk := range t {
-		basisRow(row, tk-t[0], w, d.set.Harmonics, d.set.Drift)
-		for j := 0; j < p; j++ {
-			tp.basis[j][k] = row[j]
+	tp.n, tp.freq = n, freq
+	fillBasis(tp.basis, t, 2*math.Pi*freq, d.set.Harmonics, d.set.Drift)
+	g := d.gram
+	for i := 0; i < p; i++ {
+		for j := i; j < p; j++ {
+			s := float64(n)
+			if i != 2 || j != 2 {
+				s = dot(tp.basis[i], tp.basis[j])
+			}
+			g[i*p+j], g[j*p+i] = s, s
 		}
 	}
-	g, err := normalInverse(tp.basis)
-	if err != nil {
-		return nil, err
+	if err := cholesky(d.chol, g, p, p); err != nil {
+		return nil, errors.New("calibrate: demodulate: the sine basis is singular in a window (too few samples per cycle?)")
 	}
-	tp.ginv = g
+	// (XᵀX)⁻¹ column by column; it is symmetric, so columns are rows.
+	for j := 0; j < p; j++ {
+		col := tp.ginv[j*p : (j+1)*p]
+		for i := range col {
+			col[i] = 0
+		}
+		col[j] = 1
+		cholSolve(d.chol, col)
+	}
 	return tp, nil
-}
-
-// estimateWindowFreq runs the four-parameter fit on the axis with the
-// largest amplitude at the nominal frequency.
-func (d *demodulator) estimateWindowFreq(lo, hi int) (float64, error) {
-	t := d.c.Time[lo:hi]
-	best, bestAmp := 0, -1.0
-	ss := &SineSettings{Harmonics: d.set.Harmonics, Drift: d.set.Drift}
-	for k := 0; k < 3; k++ {
-		f, err := FitSine(t, d.c.B[k][lo:hi], d.set.Freq, ss)
-		if err != nil {
-			return 0, err
-		}
-		if a := f.Amplitude(); a > bestAmp {
-			best, bestAmp = k, a
-		}
-	}
-	f, err := FitSine4(t, d.c.B[best][lo:hi], d.set.Freq, ss)
-	if err != nil {
-		return 0, err
-	}
-	return f.Freq, nil
 }
 
 // phaseDrift records the apparent frequency error from the phase advance

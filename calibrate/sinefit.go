@@ -223,3 +223,478 @@ func FitSine4(t, y []float64, freq0 float64, set *SineSettings) (SineFit, error)
 	f2.Iterations = f.Iterations
 	return f2, nil
 }
+
+// reseedEvery is how many samples sincosSeries advances by rotation before
+// it evaluates math.Sincos afresh. Each rotation adds at most a few units
+// in the last place to the phase and the magnitude, so the drift stays
+// below 1e-14 whatever the window's length (TestSincosSeriesDrift).
+const reseedEvery = 32
+
+// maxGridOffset is the largest phase offset, rad, between a sample's own
+// time and the window's uniform grid that sincosSeries corrects by series;
+// the series' truncation error, maxGridOffset⁶/720, is below 1e-20.
+// Samples further off the grid get math.Sincos.
+const maxGridOffset = 1e-3
+
+// sincosSeries fills cs[k] and sn[k] with cos and sin of w (t[k] - t[0]).
+// It panics unless cs and sn are as long as t. See sincosGrid.
+func sincosSeries(cs, sn, t []float64, w float64) {
+	if len(cs) != len(t) || len(sn) != len(t) {
+		panic("calibrate: sincosSeries: column lengths differ from the times")
+	}
+	sincosGrid(cs, sn, t, w, gridStep(t))
+}
+
+// gridStep returns the step h = (t[n-1]-t[0])/(n-1) of the uniform grid
+// through the first and last times (zero for fewer than two).
+func gridStep(t []float64) float64 {
+	if len(t) < 2 {
+		return 0
+	}
+	return (t[len(t)-1] - t[0]) / float64(len(t)-1)
+}
+
+// sincosGrid fills cs[k] and sn[k] with cos and sin of w τ_k, τ_k = t[k] -
+// t[0]. On the uniform grid of step h the phase is w k h = w k0 h +
+// w j h with k0 a multiple of reseedEvery: exp(i w k0 h) comes from
+// math.Sincos and exp(i w j h) from a table built by repeated rotation by
+// exp(i w h), so no sample is more than reseedEvery-1 rotations from an
+// exact value and no sample waits on the one before. Each sample's
+// departure from the grid, δ = w (τ_k - k h), is then applied as the
+// rotation exp(i δ) from its Taylor series, or, beyond maxGridOffset, the
+// sample gets math.Sincos(w τ_k). cs and sn must be as long as t.
+func sincosGrid(cs, sn, t []float64, w, h float64) {
+	n := len(t)
+	cs, sn = cs[:n], sn[:n]
+	var rc, rs [reseedEvery]float64
+	rc[0] = 1
+	s1, c1 := math.Sincos(w * h)
+	for j := 1; j < reseedEvery; j++ {
+		rc[j], rs[j] = rc[j-1]*c1-rs[j-1]*s1, rc[j-1]*s1+rs[j-1]*c1
+	}
+	t0 := t[0]
+	for k0 := 0; k0 < n; k0 += reseedEvery {
+		k1 := min(k0+reseedEvery, n)
+		ss, sc := math.Sincos(w * (float64(k0) * h))
+		for k := k0; k < k1; k++ {
+			j := k - k0
+			zc, zs := sc*rc[j]-ss*rs[j], sc*rs[j]+ss*rc[j]
+			tau := t[k] - t0
+			d := w * (tau - float64(k)*h)
+			if math.Abs(d) <= maxGridOffset {
+				d2 := d * d
+				cd := 1 - d2*(0.5-d2*(1.0/24))
+				sd := d * (1 - d2*(1.0/6-d2*(1.0/120)))
+				cs[k], sn[k] = zc*cd-zs*sd, zc*sd+zs*cd
+			} else {
+				sn[k], cs[k] = math.Sincos(w * tau)
+			}
+		}
+	}
+}
+
+// fillBasis writes the columns of the sine-fit basis at angular frequency
+// w for the times t, relative to t[0], into cols: cos, sin, 1, the cos and
+// sin of each harmonic, and τ when drift is set (the order of basisRow).
+// Harmonics are powers of exp(i w τ), so only the fundamental costs a
+// sine and cosine per sample.
+func fillBasis(cols [][]float64, t []float64, w float64, harmonics []int, drift bool) {
+	cs, sn := cols[0], cols[1]
+	sincosSeries(cs, sn, t, w)
+	one := cols[2]
+	for k := range one {
+		one[k] = 1
+	}
+	for j, h := range harmonics {
+		hc, hs := cols[3+2*j], cols[4+2*j]
+		for k, c := range cs {
+			s := sn[k]
+			pc, ps := c, s
+			for m := 1; m < h; m++ {
+				pc, ps = pc*c-ps*s, pc*s+ps*c
+			}
+			hc[k], hs[k] = pc, ps
+		}
+	}
+	if drift {
+		tc := cols[3+2*len(harmonics)]
+		for k, tk := range t {
+			tc[k] = tk - t[0]
+		}
+	}
+}
+
+// dot returns Σ a[i] b[i] with four partial sums (it panics if b is
+// shorter than a).
+func dot(a, b []float64) float64 {
+	b = b[:len(a)]
+	var s0, s1, s2, s3 float64
+	i := 0
+	for ; i+4 <= len(a); i += 4 {
+		s0 += a[i] * b[i]
+		s1 += a[i+1] * b[i+1]
+		s2 += a[i+2] * b[i+2]
+		s3 += a[i+3] * b[i+3]
+	}
+	for ; i < len(a); i++ {
+		s0 += a[i] * b[i]
+	}
+	return (s0 + s1) + (s2 + s3)
+}
+
+// errSingularBasis is returned when the normal matrix of a window's basis
+// is not positive definite.
+var errSingularBasis = errors.New("calibrate: sine fit: basis is singular (too few samples per cycle or duplicate times?)")
+
+// cholesky factors the leading p×p block of the symmetric matrix g (row
+// stride ld) into the lower triangle l (p×p, row-major), l lᵀ = g.
+func cholesky(l, g []float64, p, ld int) error {
+	for j := 0; j < p; j++ {
+		d := g[j*ld+j]
+		for k := 0; k < j; k++ {
+			d -= l[j*p+k] * l[j*p+k]
+		}
+		// A pivot this small relative to its diagonal means the columns
+		// are dependent to the precision of the sums.
+		if !(d > 1e-13*g[j*ld+j]) {
+			return errSingularBasis
+		}
+		d = math.Sqrt(d)
+		l[j*p+j] = d
+		for i := j + 1; i < p; i++ {
+			s := g[i*ld+j]
+			for k := 0; k < j; k++ {
+				s -= l[i*p+k] * l[j*p+k]
+			}
+			l[i*p+j] = s / d
+		}
+	}
+	return nil
+}
+
+// cholSolve overwrites b with the solution of l lᵀ x = b.
+func cholSolve(l, b []float64) {
+	p := len(b)
+	for i := 0; i < p; i++ {
+		s := b[i]
+		for k := 0; k < i; k++ {
+			s -= l[i*p+k] * b[k]
+		}
+		b[i] = s / l[i*p+i]
+	}
+	for i := p - 1; i >= 0; i-- {
+		s := b[i]
+		for k := i + 1; k < p; k++ {
+			s -= l[k*p+i] * b[k]
+		}
+		b[i] = s / l[i*p+i]
+	}
+}
+
+// stepTolSigma ends the four-parameter iterations of freqFit once a step
+// is below this fraction of the frequency's own sigma (as well as when it
+// moves the phase across the window by less than 1e-10 rad, FitSine4's
+// test). The iterations converge linearly at a rate of about the
+// noise-to-signal ratio over √n (1e-3 for 1 nT of noise on a 125 nT tone
+// over 200 samples), so the next step, the change this test can make to
+// the answer, is some 1e-9 sigma: far below anything the sigma could
+// resolve, and it saves one pass over the samples in four.
+const stepTolSigma = 1e-6
+
+// freqFit is the four-parameter sine fit of IEEE Std 1057 / 1241 on the
+// three axes of a window, with buffers reused from window to window. It
+// reproduces FitSine4 on the axis with the largest three-parameter
+// amplitude at the starting frequency, by the same Gauss-Newton
+// iterations, but works on normal equations: each iteration makes one pass
+// over the samples to form the normal matrix of the columns
+//
+//	cos ωτ, sin ωτ, 1, [harmonics], [τ], τ sin ωτ, τ cos ωτ
+//
+// and their products with the data, from which both the three-parameter
+// fit (for the starting amplitudes and the choice of axis) and the
+// Gauss-Newton step, whose frequency column is ∂y/∂ω = τ(-A sin ωτ +
+// B cos ωτ), follow by a Cholesky factor of the p×p basis block and its
+// Schur complement. The last step's Schur complement q gives the
+// frequency's variance s²/q (s² the residual variance).
+type freqFit struct {
+	harmonics []int
+	drift     bool
+	p         int          // linear parameters: 3, 2 per harmonic, 1 for drift
+	n         int          // samples in the buffers
+	cols      [][]float64  // p basis columns, then τ sin ωτ and τ cos ωτ
+	ys        [3][]float64 // the window's series less their first value
+	yt        [3][]float64 // ys times τ (three-parameter case)
+	y1        [3]float64   // Σ ys per axis
+	tau       []float64    // τ = t - t[0]
+	t1, t2    float64      // Σ τ and Σ τ²
+	gram      []float64    // (p+2)×(p+2) normal matrix of cols, row-major
+	xty       [3][]float64 // colsᵀ y per axis
+	yy        [3]float64   // yᵀy per axis
+	l         []float64    // p×p Cholesky factor of the basis block
+	u, z, b0  []float64    // scratch, p each
+}
+
+func newFreqFit(harmonics []int, drift bool) *freqFit {
+	p := 3 + 2*len(harmonics)
+	if drift {
+		p++
+	}
+	m := p + 2
+	f := &freqFit{harmonics: harmonics, drift: drift, p: p,
+		cols: make([][]float64, m),
+		gram: make([]float64, m*m),
+		l:    make([]float64, p*p),
+		u:    make([]float64, p), z: make([]float64, p), b0: make([]float64, p),
+	}
+	for k := range f.xty {
+		f.xty[k] = make([]float64, m)
+	}
+	return f
+}
+
+// load copies the window's times t and series y[k], less their first
+// values, into the buffers and reports the first axis whose sum of
+// squares is not finite (-1 if none). It panics if the lengths differ.
+func (f *freqFit) load(t []float64, y [3][]float64) int {
+	n := len(t)
+	for k := range y {
+		if len(y[k]) != n {
+			panic("calibrate: freqFit: series and times differ in length")
+		}
+	}
+	if cap(f.tau) < n {
+		f.tau = make([]float64, n)
+		for k := range f.ys {
+			f.ys[k] = make([]float64, n)
+			f.yt[k] = make([]float64, n)
+		}
+		for j := range f.cols {
+			f.cols[j] = make([]float64, n)
+		}
+	}
+	f.n = n
+	tau := f.tau[:n]
+	f.t1, f.t2 = 0, 0
+	for i, ti := range t {
+		v := ti - t[0]
+		tau[i] = v
+		f.t1 += v
+		f.t2 += v * v
+	}
+	bad := -1
+	for k := range f.ys {
+		ys, yt := f.ys[k][:n], f.yt[k][:n]
+		ref := y[k][0]
+		var s1, s2 float64
+		for i, v := range y[k] {
+			v -= ref
+			ys[i] = v
+			yt[i] = v * tau[i]
+			s1 += v
+			s2 += v * v
+		}
+		f.y1[k], f.yy[k] = s1, s2
+		if bad < 0 && (math.IsNaN(s2) || math.IsInf(s2, 0)) {
+			bad = k
+		}
+	}
+	return bad
+}
+
+// pass fills the columns at angular frequency w for the times t and forms
+// the normal matrix and the products with the axes listed, then factors
+// the basis block.
+func (f *freqFit) pass(t []float64, w float64, axes ...int) error {
+	if f.p == 3 {
+		return f.pass3(t, w, axes)
+	}
+	n, p := f.n, f.p
+	m := p + 2
+	cols := f.cols
+	for j := range cols {
+		cols[j] = cols[j][:n]
+	}
+	fillBasis(cols[:p], t, w, f.harmonics, f.drift)
+	ts, tc := cols[p], cols[p+1]
+	cs, sn := cols[0], cols[1]
+	for k, tk := range t {
+		tau := tk - t[0]
+		ts[k], tc[k] = tau*sn[k], tau*cs[k]
+	}
+	for i := 0; i < m; i++ {
+		for j := i; j < m; j++ {
+			var s float64
+			if i == 2 && j == 2 {
+				s = float64(n)
+			} else {
+				s = dot(cols[i], cols[j])
+			}
+			f.gram[i*m+j], f.gram[j*m+i] = s, s
+		}
+	}
+	for _, k := range axes {
+		ys := f.ys[k][:n]
+		for j := 0; j < m; j++ {
+			if j == 2 {
+				f.xty[k][j] = f.y1[k]
+			} else {
+				f.xty[k][j] = dot(cols[j], ys)
+			}
+		}
+	}
+	return cholesky(f.l, f.gram, p, m)
+}
+
+// pass3 is pass for the plain three-parameter basis cos, sin, 1, in one
+// sweep over the samples for the first axis listed. With c² + s² = 1 the
+// ten sums Σc, Σs, Σc², Σsc, Στc, Στs, Στc², Στsc, Στ²c², Στ²sc and the
+// window's Στ, Στ² give the whole 5×5 normal matrix.
+func (f *freqFit) pass3(t []float64, w float64, axes []int) error {
+	n := f.n
+	cs, sn := f.cols[0][:n], f.cols[1][:n]
+	sincosSeries(cs, sn, t, w)
+	tau := f.tau[:n]
+	a0 := axes[0]
+	ys, yt := f.ys[a0][:n], f.yt[a0][:n]
+	// Three sweeps of a few sums each keep the sums in registers.
+	var c1, s1, c2, sc, tc, ts float64
+	for i, c := range cs {
+		s, ta := sn[i], tau[i]
+		c1 += c
+		s1 += s
+		c2 += c * c
+		sc += s * c
+		tc += ta * c
+		ts += ta * s
+	}
+	var tc2, tsc, t2c2, t2sc float64
+	for i, c := range cs {
+		s, ta := sn[i], tau[i]
+		tcv := ta * c
+		tc2 += tcv * c
+		tsc += tcv * s
+		t2c2 += tcv * tcv
+		t2sc += tcv * (ta * s)
+	}
+	var yc, ysn, ytc, yts float64
+	for i, c := range cs {
+		s, y, yta := sn[i], ys[i], yt[i]
+		yc += y * c
+		ysn += y * s
+		ytc += yta * c
+		yts += yta * s
+	}
+	fn := float64(n)
+	g := f.gram
+	sym := func(i, j int, v float64) { g[i*5+j], g[j*5+i] = v, v }
+	sym(0, 0, c2)
+	sym(0, 1, sc)
+	sym(0, 2, c1)
+	sym(0, 3, tsc)
+	sym(0, 4, tc2)
+	sym(1, 1, fn-c2)
+	sym(1, 2, s1)
+	sym(1, 3, f.t1-tc2)
+	sym(1, 4, tsc)
+	sym(2, 2, fn)
+	sym(2, 3, ts)
+	sym(2, 4, tc)
+	sym(3, 3, f.t2-t2c2)
+	sym(3, 4, t2sc)
+	sym(4, 4, t2c2)
+	x := f.xty[a0]
+	x[0], x[1], x[2], x[3], x[4] = yc, ysn, f.y1[a0], yts, ytc
+	for _, k := range axes[1:] {
+		x := f.xty[k]
+		ys, yt := f.ys[k][:n], f.yt[k][:n]
+		x[0], x[1], x[2], x[3], x[4] = dot(ys, cs), dot(ys, sn), f.y1[k], dot(yt, sn), dot(yt, cs)
+	}
+	return cholesky(f.l, g, 3, 5)
+}
+
+// linear solves the three-parameter (basis-only) fit of axis k from the
+// current pass into f.b0 and returns its amplitude.
+func (f *freqFit) linear(k int) float64 {
+	b := f.b0
+	copy(b, f.xty[k][:f.p])
+	cholSolve(f.l, b)
+	return math.Hypot(b[0], b[1])
+}
+
+// fit runs the four-parameter fit on the times t (those given to load)
+// from the starting frequency freq0 (Hz). It returns the frequency, the axis
+// fitted, the iterations made and the Schur complement q of the last
+// Gauss-Newton step (the frequency's variance is s²/q, rad²/s²).
+func (f *freqFit) fit(t []float64, freq0 float64, maxIter int) (freq float64, axis, iters int, q float64, err error) {
+	n, p := len(t), f.p
+	if n != f.n {
+		panic("calibrate: freqFit: times differ in length from the loaded series")
+	}
+	if n <= p+1 {
+		return 0, 0, 0, 0, fmt.Errorf("calibrate: four-parameter fit: %d samples for %d parameters", n, p+1)
+	}
+	span := t[n-1] - t[0]
+	if !(span > 0) {
+		return 0, 0, 0, 0, errors.New("calibrate: four-parameter fit: times do not increase")
+	}
+	m := p + 2
+	w := 2 * math.Pi * freq0
+	if err := f.pass(t, w, 0, 1, 2); err != nil {
+		return 0, 0, 0, 0, err
+	}
+	best, bestAmp := 0, -1.0
+	var a, b float64
+	for k := 0; k < 3; k++ {
+		if amp := f.linear(k); amp > bestAmp {
+			best, bestAmp = k, amp
+			a, b = f.b0[0], f.b0[1]
+		}
+	}
+	g := f.gram
+	for it := 1; it <= maxIter; it++ {
+		iters = it
+		if it > 1 {
+			if err := f.pass(t, w, best); err != nil {
+				return 0, best, iters, 0, err
+			}
+		}
+		xty := f.xty[best]
+		// Border of the normal matrix for the column d = -A τ sin + B τ cos.
+		u, z, b0 := f.u, f.z, f.b0
+		for j := 0; j < p; j++ {
+			u[j] = -a*g[j*m+p] + b*g[j*m+p+1]
+		}
+		dd := a*a*g[p*m+p] - 2*a*b*g[p*m+p+1] + b*b*g[(p+1)*m+p+1]
+		yd := -a*xty[p] + b*xty[p+1]
+		copy(z, u)
+		cholSolve(f.l, z)
+		copy(b0, xty[:p])
+		cholSolve(f.l, b0)
+		q = dd
+		num := yd
+		for j := 0; j < p; j++ {
+			q -= u[j] * z[j]
+			num -= u[j] * b0[j]
+		}
+		if !(q > 1e-13*dd) {
+			return 0, best, iters, 0, errSingularBasis
+		}
+		dw := num / q
+		// Residual sum of squares of this linearised step, for the
+		// frequency's sigma sqrt(s²/q).
+		rss := f.yy[best] - dw*yd
+		for j := 0; j < p; j++ {
+			rss -= (b0[j] - z[j]*dw) * xty[j]
+		}
+		sigmaW := math.Sqrt(math.Max(rss, 0) / float64(n-p-1) / q)
+		w += dw
+		a, b = b0[0]-z[0]*dw, b0[1]-z[1]*dw
+		if !(w > 0) || math.IsNaN(w) {
+			return 0, best, iters, 0, fmt.Errorf("calibrate: four-parameter fit diverged from %g Hz", freq0)
+		}
+		if math.Abs(dw)*span < 1e-10 || math.Abs(dw) <= stepTolSigma*sigmaW {
+			break
+		}
+	}
+	return w / (2 * math.Pi), best, iters, q, nil
+}
