@@ -399,12 +399,13 @@ type demodulator struct {
 	outLo, outHi float64
 	firstOut     string
 	// scratch, reused from window to window
-	xty  []float64
-	beta []float64
-	fit  *freqFit  // the four-parameter fit (EstimateFreq)
-	gen  *template // the basis of a window that is not on the shared grid
-	gram []float64 // p×p normal matrix of gen
-	chol []float64 // its Cholesky factor
+	xty   []float64
+	beta  []float64
+	fit   *freqFit    // the four-parameter fit (EstimateFreq)
+	gen   *template   // the basis of a window that is not on the shared grid
+	times windowTimes // the times of a window off the shared grid
+	gram  []float64   // p×p normal matrix of gen
+	chol  []float64   // its Cholesky factor
 }
 
 // uniform reports whether rows [lo, hi) sit on the template's time grid
@@ -475,7 +476,7 @@ func (d *demodulator) window(lo, hi int) error {
 			d.outLo, d.outHi = math.Min(d.outLo, f), math.Max(d.outHi, f)
 		}
 		var err2 error
-		tpl, err2 = d.generalTemplate(lo, hi, f)
+		tpl, err2 = d.generalTemplate(&d.fit.times, f)
 		if err2 != nil {
 			return fmt.Errorf("calibrate: demodulate: window at rows %d-%d: %w", lo, hi-1, err2)
 		}
@@ -484,7 +485,8 @@ func (d *demodulator) window(lo, hi int) error {
 		d.res.Uniform++
 	} else {
 		var err error
-		tpl, err = d.generalTemplate(lo, hi, set.Freq)
+		d.times.set(c.Time[lo:hi])
+		tpl, err = d.generalTemplate(&d.times, set.Freq)
 		if err != nil {
 			return fmt.Errorf("calibrate: demodulate: window at rows %d-%d (t = %.6f s): %w", lo, hi-1, t0, err)
 		}
@@ -569,12 +571,11 @@ func (d *demodulator) window(lo, hi int) error {
 	return nil
 }
 
-// generalTemplate builds the basis from the window's own timestamps, in
+// generalTemplate builds the basis from the window's own timestamps g, in
 // buffers reused from window to window (the template is valid until the
 // next call).
-func (d *demodulator) generalTemplate(lo, hi int, freq float64) (*template, error) {
-	t := d.c.Time[lo:hi]
-	n, p := hi-lo, d.tpl.p
+func (d *demodulator) generalTemplate(g *windowTimes, freq float64) (*template, error) {
+	n, p := len(g.tau), d.tpl.p
 	tp := d.gen
 	if tp == nil {
 		tp = &template{p: p, basis: make([][]float64, p), ginv: make([]float64, p*p), harmonics: d.set.Harmonics, drift: d.set.Drift}
@@ -591,18 +592,18 @@ func (d *demodulator) generalTemplate(lo, hi int, freq float64) (*template, erro
 		tp.basis[j] = tp.basis[j][:n]
 	}
 	tp.n, tp.freq = n, freq
-	fillBasis(tp.basis, t, 2*math.Pi*freq, d.set.Harmonics, d.set.Drift)
-	g := d.gram
+	fillBasis(tp.basis, g, 2*math.Pi*freq, d.set.Harmonics, d.set.Drift)
+	xtx := d.gram
 	for i := 0; i < p; i++ {
 		for j := i; j < p; j++ {
 			s := float64(n)
 			if i != 2 || j != 2 {
 				s = dot(tp.basis[i], tp.basis[j])
 			}
-			g[i*p+j], g[j*p+i] = s, s
+			xtx[i*p+j], xtx[j*p+i] = s, s
 		}
 	}
-	if err := cholesky(d.chol, g, p, p); err != nil {
+	if err := cholesky(d.chol, xtx, p, p); err != nil {
 		return nil, errors.New("calibrate: demodulate: the sine basis is singular in a window (too few samples per cycle?)")
 	}
 	// (XᵀX)⁻¹ column by column; it is symmetric, so columns are rows.

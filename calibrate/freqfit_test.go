@@ -291,7 +291,9 @@ func TestSincosGridDrift(t *testing.T) {
 	cs, sn = cs[:m], sn[:m]
 	sincosSeries(cs, sn, tt, w)
 	offGrid := false
-	h := gridStep(tt)
+	var g windowTimes
+	g.set(tt)
+	h := g.h
 	for k := range tt {
 		tau := tt[k] - tt[0]
 		s, c := math.Sincos(w * tau)
@@ -329,9 +331,10 @@ func BenchmarkSincosGrid(b *testing.B) {
 	}
 	cs, sn := make([]float64, n), make([]float64, n)
 	w := 2 * math.Pi * 50.2
-	h := gridStep(t)
+	var g windowTimes
+	g.set(t)
 	for b.Loop() {
-		sincosGrid(cs, sn, t, w, h)
+		sincosGrid(cs, sn, &g, w)
 	}
 	b.ReportMetric(b.Elapsed().Seconds()/float64(b.N)/n*1e9, "ns/sample")
 }

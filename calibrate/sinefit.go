@@ -242,65 +242,109 @@ func sincosSeries(cs, sn, t []float64, w float64) {
 	if len(cs) != len(t) || len(sn) != len(t) {
 		panic("calibrate: sincosSeries: column lengths differ from the times")
 	}
-	sincosGrid(cs, sn, t, w, gridStep(t))
+	var g windowTimes
+	g.set(t)
+	sincosGrid(cs, sn, &g, w)
 }
 
-// gridStep returns the step h = (t[n-1]-t[0])/(n-1) of the uniform grid
-// through the first and last times (zero for fewer than two).
-func gridStep(t []float64) float64 {
-	if len(t) < 2 {
-		return 0
-	}
-	return (t[len(t)-1] - t[0]) / float64(len(t)-1)
+// windowTimes holds a window's times relative to its first, τ_k = t[k] -
+// t[0], and their offsets τ_k - k h from the uniform grid of step h =
+// τ_{n-1}/(n-1) through its ends, in buffers reused from window to window.
+type windowTimes struct {
+	tau, off []float64
+	h        float64
+	maxOff   float64 // largest |τ_k - k h|
 }
 
-// sincosGrid fills cs[k] and sn[k] with cos and sin of w τ_k, τ_k = t[k] -
-// t[0]. On the uniform grid of step h the phase is w k h = w k0 h +
-// w j h with k0 a multiple of reseedEvery: exp(i w k0 h) comes from
-// math.Sincos and exp(i w j h) from a table built by repeated rotation by
-// exp(i w h), so no sample is more than reseedEvery-1 rotations from an
-// exact value and no sample waits on the one before. Each sample's
-// departure from the grid, δ = w (τ_k - k h), is then applied as the
-// rotation exp(i δ) from its Taylor series, or, beyond maxGridOffset, the
-// sample gets math.Sincos(w τ_k). cs and sn must be as long as t.
-func sincosGrid(cs, sn, t []float64, w, h float64) {
+func (g *windowTimes) set(t []float64) {
 	n := len(t)
+	if cap(g.tau) < n {
+		g.tau = make([]float64, n)
+		g.off = make([]float64, n)
+	}
+	g.tau, g.off = g.tau[:n], g.off[:n]
+	g.h, g.maxOff = 0, 0
+	if n == 0 {
+		return
+	}
+	if n > 1 {
+		g.h = (t[n-1] - t[0]) / float64(n-1)
+	}
+	off := g.off[:n]
+	for k, tk := range t {
+		tau := tk - t[0]
+		g.tau[k] = tau
+		e := tau - float64(k)*g.h
+		off[k] = e
+		if e < 0 {
+			e = -e
+		}
+		if e > g.maxOff {
+			g.maxOff = e
+		}
+	}
+}
+
+// sincosGrid fills cs[k] and sn[k] with cos and sin of w τ_k. On the
+// uniform grid of step h the phase is w k h = w k0 h + w j h with k0 a
+// multiple of reseedEvery: exp(i w k0 h) comes from math.Sincos and
+// exp(i w j h) from a table built by repeated rotation by exp(i w h), so no
+// sample is more than reseedEvery-1 rotations from an exact value and no
+// sample waits on the one before. Each sample's offset from the grid,
+// δ = w (τ_k - k h), is then applied as the rotation exp(i δ) from its
+// Taylor series, or, beyond maxGridOffset, the sample gets
+// math.Sincos(w τ_k). cs and sn must be as long as the window.
+func sincosGrid(cs, sn []float64, g *windowTimes, w float64) {
+	n := len(g.tau)
 	cs, sn = cs[:n], sn[:n]
 	var rc, rs [reseedEvery]float64
 	rc[0] = 1
-	s1, c1 := math.Sincos(w * h)
+	s1, c1 := math.Sincos(w * g.h)
 	for j := 1; j < reseedEvery; j++ {
 		rc[j], rs[j] = rc[j-1]*c1-rs[j-1]*s1, rc[j-1]*s1+rs[j-1]*c1
 	}
-	t0 := t[0]
+	series := w*g.maxOff <= maxGridOffset
 	for k0 := 0; k0 < n; k0 += reseedEvery {
 		k1 := min(k0+reseedEvery, n)
-		ss, sc := math.Sincos(w * (float64(k0) * h))
-		for k := k0; k < k1; k++ {
-			j := k - k0
-			zc, zs := sc*rc[j]-ss*rs[j], sc*rs[j]+ss*rc[j]
-			tau := t[k] - t0
-			d := w * (tau - float64(k)*h)
-			if math.Abs(d) <= maxGridOffset {
+		off := g.off[k0:k1]
+		cb, sb := cs[k0:k1], sn[k0:k1]
+		cb, sb = cb[:len(off)], sb[:len(off)]
+		rcb, rsb := rc[:len(off)], rs[:len(off)]
+		ss, sc := math.Sincos(w * (float64(k0) * g.h))
+		if series {
+			// Every sample near the grid: no branch in the loop.
+			for j, e := range off {
+				zc, zs := sc*rcb[j]-ss*rsb[j], sc*rsb[j]+ss*rcb[j]
+				d := w * e
 				d2 := d * d
 				cd := 1 - d2*(0.5-d2*(1.0/24))
 				sd := d * (1 - d2*(1.0/6-d2*(1.0/120)))
-				cs[k], sn[k] = zc*cd-zs*sd, zc*sd+zs*cd
+				cb[j], sb[j] = zc*cd-zs*sd, zc*sd+zs*cd
+			}
+			continue
+		}
+		for j, e := range off {
+			if d := w * e; math.Abs(d) <= maxGridOffset {
+				zc, zs := sc*rcb[j]-ss*rsb[j], sc*rsb[j]+ss*rcb[j]
+				d2 := d * d
+				cd := 1 - d2*(0.5-d2*(1.0/24))
+				sd := d * (1 - d2*(1.0/6-d2*(1.0/120)))
+				cb[j], sb[j] = zc*cd-zs*sd, zc*sd+zs*cd
 			} else {
-				sn[k], cs[k] = math.Sincos(w * tau)
+				sb[j], cb[j] = math.Sincos(w * g.tau[k0+j])
 			}
 		}
 	}
 }
 
 // fillBasis writes the columns of the sine-fit basis at angular frequency
-// w for the times t, relative to t[0], into cols: cos, sin, 1, the cos and
+// w for the window's times g into cols: cos, sin, 1, the cos and
 // sin of each harmonic, and τ when drift is set (the order of basisRow).
 // Harmonics are powers of exp(i w τ), so only the fundamental costs a
 // sine and cosine per sample.
-func fillBasis(cols [][]float64, t []float64, w float64, harmonics []int, drift bool) {
+func fillBasis(cols [][]float64, g *windowTimes, w float64, harmonics []int, drift bool) {
 	cs, sn := cols[0], cols[1]
-	sincosSeries(cs, sn, t, w)
+	sincosGrid(cs, sn, g, w)
 	one := cols[2]
 	for k := range one {
 		one[k] = 1
@@ -317,10 +361,7 @@ func fillBasis(cols [][]float64, t []float64, w float64, harmonics []int, drift 
 		}
 	}
 	if drift {
-		tc := cols[3+2*len(harmonics)]
-		for k, tk := range t {
-			tc[k] = tk - t[0]
-		}
+		copy(cols[3+2*len(harmonics)], g.tau)
 	}
 }
 
@@ -425,7 +466,7 @@ type freqFit struct {
 	ys        [3][]float64 // the window's series less their first value
 	yt        [3][]float64 // ys times τ (three-parameter case)
 	y1        [3]float64   // Σ ys per axis
-	tau       []float64    // τ = t - t[0]
+	times     windowTimes
 	t1, t2    float64      // Σ τ and Σ τ²
 	gram      []float64    // (p+2)×(p+2) normal matrix of cols, row-major
 	xty       [3][]float64 // colsᵀ y per axis
@@ -462,8 +503,7 @@ func (f *freqFit) load(t []float64, y [3][]float64) int {
 			panic("calibrate: freqFit: series and times differ in length")
 		}
 	}
-	if cap(f.tau) < n {
-		f.tau = make([]float64, n)
+	if cap(f.ys[0]) < n {
 		for k := range f.ys {
 			f.ys[k] = make([]float64, n)
 			f.yt[k] = make([]float64, n)
@@ -473,11 +513,10 @@ func (f *freqFit) load(t []float64, y [3][]float64) int {
 		}
 	}
 	f.n = n
-	tau := f.tau[:n]
+	f.times.set(t)
+	tau := f.times.tau
 	f.t1, f.t2 = 0, 0
-	for i, ti := range t {
-		v := ti - t[0]
-		tau[i] = v
+	for _, v := range tau {
 		f.t1 += v
 		f.t2 += v * v
 	}
@@ -501,12 +540,12 @@ func (f *freqFit) load(t []float64, y [3][]float64) int {
 	return bad
 }
 
-// pass fills the columns at angular frequency w for the times t and forms
-// the normal matrix and the products with the axes listed, then factors
-// the basis block.
-func (f *freqFit) pass(t []float64, w float64, axes ...int) error {
+// pass fills the columns at angular frequency w for the loaded times and
+// forms the normal matrix and the products with the axes listed, then
+// factors the basis block.
+func (f *freqFit) pass(w float64, axes ...int) error {
 	if f.p == 3 {
-		return f.pass3(t, w, axes)
+		return f.pass3(w, axes)
 	}
 	n, p := f.n, f.p
 	m := p + 2
@@ -514,11 +553,10 @@ func (f *freqFit) pass(t []float64, w float64, axes ...int) error {
 	for j := range cols {
 		cols[j] = cols[j][:n]
 	}
-	fillBasis(cols[:p], t, w, f.harmonics, f.drift)
+	fillBasis(cols[:p], &f.times, w, f.harmonics, f.drift)
 	ts, tc := cols[p], cols[p+1]
 	cs, sn := cols[0], cols[1]
-	for k, tk := range t {
-		tau := tk - t[0]
+	for k, tau := range f.times.tau {
 		ts[k], tc[k] = tau*sn[k], tau*cs[k]
 	}
 	for i := 0; i < m; i++ {
@@ -549,11 +587,11 @@ func (f *freqFit) pass(t []float64, w float64, axes ...int) error {
 // sweep over the samples for the first axis listed. With c² + s² = 1 the
 // ten sums Σc, Σs, Σc², Σsc, Στc, Στs, Στc², Στsc, Στ²c², Στ²sc and the
 // window's Στ, Στ² give the whole 5×5 normal matrix.
-func (f *freqFit) pass3(t []float64, w float64, axes []int) error {
+func (f *freqFit) pass3(w float64, axes []int) error {
 	n := f.n
 	cs, sn := f.cols[0][:n], f.cols[1][:n]
-	sincosSeries(cs, sn, t, w)
-	tau := f.tau[:n]
+	sincosGrid(cs, sn, &f.times, w)
+	tau := f.times.tau[:n]
 	a0 := axes[0]
 	ys, yt := f.ys[a0][:n], f.yt[a0][:n]
 	// Three sweeps of a few sums each keep the sums in registers.
@@ -639,7 +677,7 @@ func (f *freqFit) fit(t []float64, freq0 float64, maxIter int) (freq float64, ax
 	}
 	m := p + 2
 	w := 2 * math.Pi * freq0
-	if err := f.pass(t, w, 0, 1, 2); err != nil {
+	if err := f.pass(w, 0, 1, 2); err != nil {
 		return 0, 0, 0, 0, err
 	}
 	best, bestAmp := 0, -1.0
@@ -654,7 +692,7 @@ func (f *freqFit) fit(t []float64, freq0 float64, maxIter int) (freq float64, ax
 	for it := 1; it <= maxIter; it++ {
 		iters = it
 		if it > 1 {
-			if err := f.pass(t, w, best); err != nil {
+			if err := f.pass(w, best); err != nil {
 				return 0, best, iters, 0, err
 			}
 		}
