@@ -51,7 +51,9 @@ type DemodSettings struct {
 	// (spectral peak above MinFreq, refined by a four-parameter fit).
 	Freq float64
 	// EstimateFreq re-estimates the frequency in every window by the
-	// four-parameter fit (IEEE Std 1057 / 1241), starting from Freq.
+	// four-parameter fit (IEEE Std 1057 / 1241), starting from Freq, on
+	// the axis with the largest amplitude at Freq; Window.FreqSigma
+	// carries each estimate's one-sigma.
 	EstimateFreq bool
 	// Window is the window length, s. Zero means ten cycles of Freq.
 	Window float64

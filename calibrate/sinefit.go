@@ -224,14 +224,15 @@ func FitSine4(t, y []float64, freq0 float64, set *SineSettings) (SineFit, error)
 	return f2, nil
 }
 
-// reseedEvery is how many samples sincosSeries advances by rotation before
+// reseedEvery is how many samples sincosGrid advances by rotation before
 // it evaluates math.Sincos afresh. Each rotation adds at most a few units
 // in the last place to the phase and the magnitude, so the drift stays
-// below 1e-14 whatever the window's length (TestSincosSeriesDrift).
+// within a few times 1e-14 whatever the window's length
+// (TestSincosGridDrift).
 const reseedEvery = 32
 
 // maxGridOffset is the largest phase offset, rad, between a sample's own
-// time and the window's uniform grid that sincosSeries corrects by series;
+// time and the window's uniform grid that sincosGrid corrects by series;
 // the series' truncation error, maxGridOffset⁶/720, is below 1e-20.
 // Samples further off the grid get math.Sincos.
 const maxGridOffset = 1e-3
@@ -256,6 +257,7 @@ type windowTimes struct {
 	maxOff   float64 // largest |τ_k - k h|
 }
 
+// set fills g from the window's times t.
 func (g *windowTimes) set(t []float64) {
 	n := len(t)
 	if cap(g.tau) < n {
