@@ -648,7 +648,8 @@ func (d *demodulator) phaseDrift(ws []Window) {
 
 // estimateFreq finds the dominant frequency above minFreq: the peak of the
 // summed power spectrum of the three axes over the first long run (up to
-// 65536 samples), interpolated, then refined by the four-parameter fit.
+// 65536 samples), interpolated, then refined by the four-parameter fit
+// (freqFit, on the strongest axis).
 func estimateFreq(c *Columns, runs []run, dt, minFreq float64) (float64, error) {
 	var r run
 	for _, x := range runs {
@@ -703,18 +704,19 @@ func estimateFreq(c *Columns, runs []run, dt, minFreq float64) (float64, error) 
 		}
 	}
 	f0 := (float64(peak) + delta) * df
-	axis, best := 0, -1.0
-	for k := 0; k < 3; k++ {
-		f, err := FitSine(c.Time[r.lo:r.lo+n], c.B[k][r.lo:r.lo+n], f0, nil)
-		if err == nil && f.Amplitude() > best {
-			axis, best = k, f.Amplitude()
-		}
-	}
-	f, err := FitSine4(c.Time[r.lo:r.lo+n], c.B[axis][r.lo:r.lo+n], f0, nil)
-	if err != nil || math.Abs(f.Freq-f0) > 2*df {
+	// The four-parameter fit from f0 on the axis with the largest
+	// amplitude at f0, as in the windows of EstimateFreq.
+	ff := newFreqFit(nil, false)
+	a, b := r.lo, r.lo+n
+	if ff.load(c.Time[a:b], [3][]float64{c.B[0][a:b], c.B[1][a:b], c.B[2][a:b]}) >= 0 {
+		// Non-finite readings: the window holding them reports them.
 		return f0, nil
 	}
-	return f.Freq, nil
+	f, _, _, _, err := ff.fit(c.Time[a:b], f0, 30)
+	if err != nil || math.Abs(f-f0) > 2*df {
+		return f0, nil
+	}
+	return f, nil
 }
 
 // halfTravel returns the half-travel of rows [lo, hi) (see Window.Travel):

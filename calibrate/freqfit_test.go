@@ -148,6 +148,24 @@ func TestDemodulateEstimateFreqMatchesReference(t *testing.T) {
 	}
 }
 
+func TestDemodulateFreqNotGivenIsFourParameterFit(t *testing.T) {
+	// With no frequency given, the spectral estimate is refined by the
+	// same fast fit on the first 2^k samples (16384 of 20000) of the
+	// strongest axis: the result must be the stationary point of the plain
+	// IEEE Std 1057 four-parameter fit there, so refFitSine4 started from
+	// it stays put.
+	const tol = 1e-9 // relative; rounding and the sigma-tied stop
+	c := acLog(rand.New(rand.NewPCG(33, 34)), 2000, 20000, 1.7e9, 49.93, testPhasors, 1)
+	res, err := DemodulateColumns(c, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := refFitSine4(t, c.Time[:16384], c.B[0][:16384], res.Freq, nil, false)
+	if d := math.Abs(res.Freq-want) / want; d > tol {
+		t.Errorf("estimated %.12f Hz, the four-parameter fit moves it to %.12f Hz (relative %.2g)", res.Freq, want, d)
+	}
+}
+
 func TestDemodulateFreqSigmaMonteCarlo(t *testing.T) {
 	// The reported FreqSigma must match the scatter of the estimates over
 	// many independent noisy windows (within 15%), and both must match the
@@ -337,4 +355,19 @@ func BenchmarkSincosGrid(b *testing.B) {
 		sincosGrid(cs, sn, &g, w)
 	}
 	b.ReportMetric(b.Elapsed().Seconds()/float64(b.N)/n*1e9, "ns/sample")
+}
+
+func BenchmarkDemodulateFreqUnknown(b *testing.B) {
+	// A minute of 2 kHz log with no frequency given: the spectral peak of
+	// 65536 samples refined by the four-parameter fit, then known-frequency
+	// windows.
+	const rows = 120000
+	c := acLog(rand.New(rand.NewPCG(1, 1)), 2000, rows, 1.7e9, 50.2, testPhasors, 1)
+	set := &DemodSettings{Window: 0.1}
+	for b.Loop() {
+		if _, err := DemodulateColumns(c, set); err != nil {
+			b.Fatal(err)
+		}
+	}
+	b.ReportMetric(float64(rows)*float64(b.N)/b.Elapsed().Seconds()/1e6, "Mrows/s")
 }
