@@ -441,7 +441,7 @@ func cholSolve(l, b []float64) {
 // noise-to-signal ratio over √n (1e-3 for 1 nT of noise on a 125 nT tone
 // over 200 samples), so the next step, the change this test can make to
 // the answer, is some 1e-9 sigma: far below anything the sigma could
-// resolve, and it saves one pass over the samples in four.
+// resolve, and it saves one Gauss-Newton pass in five on such windows.
 const stepTolSigma = 1e-6
 
 // freqFit is the four-parameter sine fit of IEEE Std 1057 / 1241 on the
