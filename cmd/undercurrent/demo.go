@@ -13,6 +13,7 @@ import (
 	"github.com/spf13/pflag"
 
 	"undercurrent/ingest"
+	"undercurrent/inverse/route"
 	"undercurrent/inverse/simulate"
 	"undercurrent/report"
 )
@@ -128,12 +129,7 @@ func runDemo(ctx context.Context, out string, stdout, progress io.Writer) error 
 
 // printFindings prints a short account of a result document.
 func printFindings(w io.Writer, doc *report.Document) {
-	sound := 0
-	for _, g := range doc.Groups {
-		if g.OK && g.Problem == "" {
-			sound++
-		}
-	}
+	sound, _ := soundGroups(doc)
 	fmt.Fprintf(w, "located: %d of %d traverses fitted soundly", sound, len(doc.Groups))
 	if doc.Route != nil {
 		fmt.Fprintf(w, "; route %.0f m long", doc.Route.Length)
@@ -157,4 +153,25 @@ func printFindings(w io.Writer, doc *report.Document) {
 	for _, wn := range doc.Warnings {
 		fmt.Fprintf(w, "note: %s\n", wn)
 	}
+}
+
+// soundGroups counts the groups whose fit is sound: converged, with no
+// problem of its own, and not called poor by a poor-fit caution or warning
+// of the route (a misfit far above the noise); it also counts the readings.
+func soundGroups(doc *report.Document) (sound, readings int) {
+	poor := map[string]bool{}
+	for _, f := range doc.Findings {
+		if f.Kind == string(route.KindPoorFit) && f.Severity != string(route.SeverityInfo) {
+			for _, k := range f.Groups {
+				poor[k] = true
+			}
+		}
+	}
+	for _, g := range doc.Groups {
+		readings += g.Points
+		if g.OK && g.Problem == "" && !poor[g.Key] {
+			sound++
+		}
+	}
+	return sound, readings
 }

@@ -12,6 +12,7 @@ import (
 	"bytes"
 	"context"
 	"encoding/json"
+	"fmt"
 	"math"
 	"os"
 	"path/filepath"
@@ -584,6 +585,19 @@ func TestDemo(t *testing.T) {
 				}
 			}
 		}
+	}
+	// The summary line counts as sound only the traverses no poor-fit
+	// caution or warning names.
+	poor := map[string]bool{}
+	for _, f := range doc.Findings {
+		if f.Kind == "poor-fit" && f.Severity != "info" {
+			for _, k := range f.Groups {
+				poor[k] = true
+			}
+		}
+	}
+	if want := fmt.Sprintf("located: %d of 31 traverses fitted soundly", 31-len(poor)); !strings.Contains(out, want) {
+		t.Errorf("demo summary does not say %q (%d traverses have poor-fit cautions):\n%s", want, len(poor), out)
 	}
 	if g := doc.DepthReference.GroundSigma; g != 0.02 {
 		t.Errorf("depth_reference.ground_sigma_m %g, want the demo's 0.02", g)

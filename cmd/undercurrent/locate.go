@@ -678,13 +678,7 @@ func toolVersion() string {
 
 // printSummary prints the groups and findings for a person.
 func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
-	ok, readings := 0, 0
-	for _, g := range doc.Groups {
-		readings += g.Points
-		if g.OK && g.Problem == "" {
-			ok++
-		}
-	}
+	ok, readings := soundGroups(doc)
 	unit := "readings"
 	if doc.Signal.Mode == report.SignalAC {
 		unit = "AC windows"
