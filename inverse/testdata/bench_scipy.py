@@ -9,8 +9,9 @@ test, so both sides fit exactly the same readings.
 
 Same model: straight infinite lines (Biot-Savart) plus a uniform background per axis.
 One traverse: each line has offset and height, azimuth held perpendicular to the
-traverse and dip held at zero (as the Go fit does, since a single traverse cannot
-resolve them). Areal surveys: offset, height, azimuth and dip per line. Strengths
+traverse and dip held at zero (the Go benchmark holds them too, through
+Settings.Azimuth and Settings.Dip; by default the Go fit also fits them from the
+three-axis field). Areal surveys: offset, height, azimuth and dip per line. Strengths
 (currents, background) are fitted with the geometry.
 
 Python is given every advantage that does not change the answer:
