@@ -762,13 +762,17 @@ func (j *jointFit) derivatives(rss0 float64) (*mat.VecDense, *mat.SymDense) {
 // Hessian's.
 const gradStep = 0.1
 
-// jointRounds bounds the Newton steps of refine.
-const jointRounds = 4
+// jointRounds bounds the Newton steps of refine, and after a full step
+// shorter than jointNear (m) it takes no more.
+const (
+	jointRounds = 4
+	jointNear   = 0.01
+)
 
 // refine moves the model to the minimum of the joint residual sum of
 // squares by Newton steps dx = -H^-1 g (the step halved, up to 4 times,
 // until it lowers the residual), stopping when the dipole moves less than
-// 0.1 mm. Block coordinate descent (searchDipole) stops short of the joint
+// 0.1 mm or a full step moves it less than jointNear. Block coordinate descent (searchDipole) stops short of the joint
 // minimum when the dipole's and the lines' parameters are correlated (its
 // steps shrink geometrically); the Monte Carlo of dipole_coverage_test.go
 // found it a third to two thirds of a sigma short, always on the same side.
@@ -785,18 +789,22 @@ func (j *jointFit) refine(rss0 float64) float64 {
 			break
 		}
 		x := make([]float64, len(j.step))
-		moved := false
+		moved, full := false, false
 		for t := 1.0; t > 0.05; t /= 2 {
 			for a := range x {
 				x[a] = -t * dx.AtVec(a)
 			}
 			if r := j.rss(x); r < rss0 {
 				j.move(x)
-				rss0, moved = r, true
+				rss0, moved, full = r, true, t == 1
 				break
 			}
 		}
-		if !moved || math.Hypot(math.Hypot(x[0], x[1]), x[2]) < 1e-4 {
+		// A full Newton step of d leaves the point of zero gradient
+		// about d^2/L away, L the length over which the curvature
+		// changes (metres here): after a full step under jointNear
+		// another would move the dipole by well under a millimetre.
+		if d := math.Hypot(math.Hypot(x[0], x[1]), x[2]); !moved || d < 1e-4 || (full && d < jointNear) {
 			break
 		}
 	}

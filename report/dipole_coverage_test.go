@@ -22,18 +22,19 @@ import (
 // standard deviation 1 and |z| <= 2 in 95.45% of draws (the normal
 // distribution).
 //
-// What the check found (400 draws, white noise): held at the position
-// found, the moment's sigma left out how the depth and the moment trade
-// against each other, sd of z 3.0 and 45% inside 2 sigma; block coordinate
-// descent stopped short of the joint minimum, mean z of -0.65 in depth and
-// +0.55 east, 89% and 91% inside 2 sigma. Newton steps on the joint fit
-// (jointFit.refine), the gradient over short steps, and the moment's sigma
-// through the position and the lines' geometry (jointFit.uncertainty) put
-// all four at sd 0.98-1.03, 94-96% inside 2 sigma. With smooth noise
-// (AR(1), rho 0.8 from one reading to the next) the former scalar factor
-// (1 + rho)/(1 - rho) gave sd 0.65-0.71 (99-100% inside 2 sigma); the
-// sandwich covariance gives 0.97-1.07. AC phasor readings give sd
-// 0.88-1.15, 92-97% inside 2 sigma (two sets of draws, 200 and 100).
+// What the check found, on the draws of TestDipoleSigmaCoverage. Before:
+// held at the position found, the moment's sigma left out how the depth
+// and the moment trade against each other (sd of z 2.9, 48% inside two
+// sigma, white noise); block coordinate descent stopped short of the joint
+// minimum (mean z -0.57 in depth, +0.36 east); with smooth noise (AR(1),
+// rho 0.8 from one reading to the next) the scalar factor (1 + rho)/(1 -
+// rho) made the position sigmas too wide (sd of z 0.67-0.73, 99-100%
+// inside two sigma). After Newton steps on the joint fit
+// (jointFit.refine, the gradient over short steps), the moment's sigma
+// through the position and the lines' geometry and the sandwich
+// covariance (jointFit.uncertainty): sd of z 0.96-1.05 for white and
+// smooth noise, 0.96-1.15 for AC phasors, 92-97.5% inside two sigma, mean
+// z within 0.14 of 0.
 
 // zStats summarises z = (estimate - truth)/sigma over the draws.
 type zStats struct {
