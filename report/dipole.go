@@ -591,7 +591,7 @@ func searchDipole(f *Fit) *dipoleSearch {
 	// metres away, which the infinite lines miss) is smooth along the
 	// traverse, not white: scale the variance by the AR(1) factor of the
 	// residuals (see residualAR1).
-	sig, momSigma := jf.uncertainty(rss, s2, residualAR1(r), r, len(lines))
+	sig, momSigma, momAxisSigma := jf.uncertainty(rss, s2, residualAR1(r), r, len(lines))
 	zref := res.ReferenceZ
 	if res.DepthReference != "ReferenceZ" {
 		var m float64
@@ -602,6 +602,9 @@ func searchDipole(f *Fit) *dipoleSearch {
 	}
 	o := &route.Object{Point: pos, PointSigma: sig, Depth: zref - pos[2], DepthSigma: sig[2], Evidence: ds.gain}
 	mom, momSig := moment(p, r, len(lines))
+	if momAxisSigma != ([3]float64{}) {
+		momSig = momAxisSigma
+	}
 	o.Moment = math.Sqrt(mom[0]*mom[0] + mom[1]*mom[1] + mom[2]*mom[2])
 	o.MomentSigma = momSigma
 	o.Distance = offLine(&lr.Sources[0], pos)
@@ -851,18 +854,18 @@ func (j *jointFit) refine(rss0 float64) float64 {
 // Held at the position found, the moment's sigma was three times too
 // small in the Monte Carlo: the depth and the moment trade against each
 // other.
-func (j *jointFit) uncertainty(rss0, s2, rho float64, r *inverse.Result, at int) (pos [3]float64, mom float64) {
+func (j *jointFit) uncertainty(rss0, s2, rho float64, r *inverse.Result, at int) (pos [3]float64, mom float64, axis [3]float64) {
 	p := j.loc.p
 	np := len(j.step)
 	_, H := j.derivatives(rss0)
 	H.ScaleSym(0.5, H)
 	var ch mat.Cholesky
 	if !ch.Factorize(H) {
-		return pos, 0
+		return pos, 0, axis
 	}
 	var hinv mat.SymDense
 	if err := ch.InverseTo(&hinv); err != nil {
-		return pos, 0
+		return pos, 0, axis
 	}
 	// The moment's magnitude, and the profiled residuals as series.
 	mag := func(r *inverse.Result) (m float64, re, im [3]float64) {
@@ -898,20 +901,36 @@ func (j *jointFit) uncertainty(rss0, s2, rho float64, r *inverse.Result, at int)
 	ep, em := make([]float64, nser*n), make([]float64, nser*n)
 	x := make([]float64, np)
 	dm := make([]float64, np)
+	// The same for each axis's moment (magnitude for AC).
+	var dma [3][]float64
+	for c := range dma {
+		dma[c] = make([]float64, np)
+	}
 	for a := range np {
 		var mm [2]float64
+		var ma [2][3]float64
 		for k, sgn := range []float64{1, -1} {
 			clear(x)
 			x[a] = sgn * j.step[a]
 			rr, _ := j.loc.fit(j.set(x))
 			if rr == nil || (p.Phasors == nil && len(rr.Residuals) != n) || (p.Phasors != nil && len(rr.ResidualPhasors) != n) {
 				j.set(make([]float64, np))
-				return [3]float64{}, 0
+				return [3]float64{}, 0, axis
 			}
-			mm[k], _, _ = mag(rr)
+			var re, im [3]float64
+			mm[k], re, im = mag(rr)
+			for c := range 3 {
+				ma[k][c] = math.Hypot(re[c], im[c])
+				if p.Phasors == nil {
+					ma[k][c] = re[c]
+				}
+			}
 			series(rr, [][]float64{ep, em}[k])
 		}
 		dm[a] = (mm[0] - mm[1]) / (2 * j.step[a])
+		for c := range 3 {
+			dma[c][a] = (ma[0][c] - ma[1][c]) / (2 * j.step[a])
+		}
 		for i := range ep {
 			K.Set(i, a, -(ep[i]-em[i])/(2*j.step[a]))
 		}
@@ -955,7 +974,7 @@ func (j *jointFit) uncertainty(rss0, s2, rho float64, r *inverse.Result, at int)
 	// The moment's magnitude: conditional part and the part through theta.
 	m0, re, im := mag(r)
 	if !(m0 > 0) || r.Covariance == nil || !(r.Sigma > 0) {
-		return pos, 0
+		return pos, 0, axis
 	}
 	f := s2 * ar1Factor(rho) / (r.Sigma * r.Sigma)
 	var v float64
@@ -970,7 +989,18 @@ func (j *jointFit) uncertainty(rss0, s2, rho float64, r *inverse.Result, at int)
 			v += dm[a] * C.At(a, b) * dm[b]
 		}
 	}
-	return pos, math.Sqrt(v)
+	// Each axis: its conditional variance (for AC that of the magnitude
+	// too, to first order) and the part through theta.
+	for c := range 3 {
+		va := r.Covariance.At(at+c, at+c) * f
+		for a := range np {
+			for b := range np {
+				va += dma[c][a] * C.At(a, b) * dma[c][b]
+			}
+		}
+		axis[c] = math.Sqrt(math.Max(va, 0))
+	}
+	return pos, math.Sqrt(v), axis
 }
 
 // offLine is the horizontal distance of p from the line s.

@@ -23,18 +23,18 @@ import (
 // distribution).
 //
 // What the check found, on the draws of TestDipoleSigmaCoverage. Before:
-// held at the position found, the moment's sigma left out how the depth
-// and the moment trade against each other (sd of z 2.9, 48% inside two
-// sigma, white noise); block coordinate descent stopped short of the joint
-// minimum (mean z -0.57 in depth, +0.36 east); with smooth noise (AR(1),
-// rho 0.8 from one reading to the next) the scalar factor (1 + rho)/(1 -
-// rho) made the position sigmas too wide (sd of z 0.67-0.73, 99-100%
-// inside two sigma). After Newton steps on the joint fit
-// (jointFit.refine, the gradient over short steps), the moment's sigma
-// through the position and the lines' geometry and the sandwich
-// covariance (jointFit.uncertainty): sd of z 0.96-1.05 for white and
-// smooth noise, 0.96-1.15 for AC phasors, 92-97.5% inside two sigma, mean
-// z within 0.14 of 0.
+// held at the position found, the moment's sigmas left out how the depth
+// and the moment trade against each other (white noise: sd of z 2.9 for
+// the magnitude, 2.8-5.1 per axis; 21-53% inside two sigma); block
+// coordinate descent stopped short of the joint minimum (mean z -0.57 in
+// depth, +0.36 east); with smooth noise (AR(1), rho 0.8 from one reading
+// to the next) the scalar factor (1 + rho)/(1 - rho) made the position
+// sigmas too wide (sd of z 0.67-0.69, 99-100% inside two sigma). After
+// Newton steps on the joint fit (jointFit.refine, the gradient over short
+// steps), the moment's sigmas through the position and the lines'
+// geometry and the sandwich covariance (jointFit.uncertainty): sd of z
+// 0.93-1.14 for all seven quantities in the three cases, 91-97.5% inside
+// two sigma, mean z within 0.14 of 0.
 
 // zStats summarises z = (estimate - truth)/sigma over the draws.
 type zStats struct {
@@ -57,8 +57,10 @@ func summarise(z []float64) zStats {
 	return s
 }
 
-// coverageQuantities are the finding's values the check covers.
-var coverageQuantities = [4]string{"east", "north", "depth", "moment"}
+// coverageQuantities are the finding's values the check covers, then the
+// moment's axes as the group's dipole source gives them (magnitudes for
+// AC).
+var coverageQuantities = [7]string{"east", "north", "depth", "moment", "moment e", "moment n", "moment u"}
 
 // dipoleCoverage runs draws searches, each on one traverse at east 30 m of
 // the drum fixture with the drum at east 30.2-30.8 m (0.2-0.8 m off the
@@ -68,9 +70,9 @@ var coverageQuantities = [4]string{"east", "north", "depth", "moment"}
 // returns z for each of coverageQuantities, and the number of searches that
 // found nothing. With ac the readings are phasors (drumPhasors, white
 // noise).
-func dipoleCoverage(t testing.TB, seed uint64, draws int, rho, noise float64, ac bool) (z [4][]float64, failed int) {
+func dipoleCoverage(t testing.TB, seed uint64, draws int, rho, noise float64, ac bool) (z [7][]float64, failed int) {
 	type out struct {
-		z  [4]float64
+		z  [7]float64
 		ok bool
 	}
 	res := make([]out, draws)
@@ -105,10 +107,16 @@ func dipoleCoverage(t testing.TB, seed uint64, draws int, rho, noise float64, ac
 			}
 			o := ds.obj
 			m := drumMoment
-			est := [4]float64{o.Point[0], o.Point[1], o.Depth, o.Moment}
-			sig := [4]float64{o.PointSigma[0], o.PointSigma[1], o.DepthSigma, o.MomentSigma}
-			tru := [4]float64{pos[0], pos[1], -pos[2], math.Sqrt(m[0]*m[0] + m[1]*m[1] + m[2]*m[2])}
-			for a := range 4 {
+			sm, ss := ds.source.Moment, ds.source.MomentSigma
+			est := [7]float64{o.Point[0], o.Point[1], o.Depth, o.Moment, sm[0], sm[1], sm[2]}
+			sig := [7]float64{o.PointSigma[0], o.PointSigma[1], o.DepthSigma, o.MomentSigma, ss[0], ss[1], ss[2]}
+			tru := [7]float64{pos[0], pos[1], -pos[2], math.Sqrt(m[0]*m[0] + m[1]*m[1] + m[2]*m[2]), m[0], m[1], m[2]}
+			if ac {
+				for c := range 3 {
+					tru[4+c] = math.Abs(m[c])
+				}
+			}
+			for a := range 7 {
 				if !(sig[a] > 0) {
 					return
 				}
@@ -126,7 +134,7 @@ func dipoleCoverage(t testing.TB, seed uint64, draws int, rho, noise float64, ac
 			failed++
 			continue
 		}
-		for a := range 4 {
+		for a := range 7 {
 			z[a] = append(z[a], r.z[a])
 		}
 	}
@@ -157,13 +165,17 @@ func drumPhasors(rng *rand.Rand, x float64, obj [3]float64, noise float64) *inve
 }
 
 // TestDipoleSigmaCoverage checks that the object's position, depth and
-// moment sigmas are calibrated, for white noise and for smooth (AR(1))
-// noise. The tolerances are three standard errors of the number of draws
-// N: the sd of z within 3/sqrt(2N) of 1 (the standard error of a normal
-// sample's sd is sd/sqrt(2N)), the 2-sigma coverage within
-// 3 sqrt(p(1-p)/N) of p = 0.9545 (binomial), the mean of z within
-// 3.5/sqrt(N) of 0. Under -short only the white-noise case runs, with
-// fewer draws (the tolerances follow N).
+// moment sigmas (the finding's, and the moment's per axis) are calibrated,
+// for white noise, smooth (AR(1)) noise and AC phasor readings. The
+// tolerances are 3.5 standard errors of the number of draws N: the sd of z
+// within 3.5/sqrt(2N) of 1 (the standard error of a normal sample's sd is
+// sd/sqrt(2N)), the 2-sigma coverage within 3.5 sqrt(p(1-p)/N) of
+// p = 0.9545 (binomial), the mean of z within 3.5/sqrt(N) of 0. With 21
+// quantities and 3 statistics, calibrated sigmas fail one about 3% of the
+// time over seeds (the seeds are fixed); halved sigmas, the moment's with
+// the position held, white-noise sigmas under the smooth noise, or the
+// search without its Newton steps fail several. Under -short only the
+// white-noise case runs, with fewer draws (the tolerances follow N).
 func TestDipoleSigmaCoverage(t *testing.T) {
 	cases := []struct {
 		name  string
@@ -174,7 +186,7 @@ func TestDipoleSigmaCoverage(t *testing.T) {
 	}{
 		{"white", 2026, 200, 0, false},
 		{"smooth rho 0.8", 2027, 120, 0.8, false},
-		{"AC phasors", 2028, 100, 0, true},
+		{"AC phasors", 2028, 150, 0, true},
 	}
 	if testing.Short() {
 		cases = cases[:1]
@@ -191,10 +203,10 @@ func TestDipoleSigmaCoverage(t *testing.T) {
 				s := summarise(z[a])
 				n := float64(s.n)
 				t.Logf("%-6s N %d  mean z %+.3f  sd z %.3f  2-sigma coverage %.1f%%", name, s.n, s.mean, s.sd, 100*s.cover)
-				if tol := 3 / math.Sqrt(2*n); math.Abs(s.sd-1) > tol {
+				if tol := 3.5 / math.Sqrt(2*n); math.Abs(s.sd-1) > tol {
 					t.Errorf("%s: sd of z %.3f, want 1 ± %.3f", name, s.sd, tol)
 				}
-				if tol := 3 * math.Sqrt(p2*(1-p2)/n); math.Abs(s.cover-p2) > tol {
+				if tol := 3.5 * math.Sqrt(p2*(1-p2)/n); math.Abs(s.cover-p2) > tol {
 					t.Errorf("%s: 2-sigma coverage %.1f%%, want %.1f%% ± %.1f%%", name, 100*s.cover, 100*p2, 100*tol)
 				}
 				if tol := 3.5 / math.Sqrt(n); math.Abs(s.mean) > tol {
