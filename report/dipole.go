@@ -549,14 +549,14 @@ func searchDipole(f *Fit) *dipoleSearch {
 	}
 	// Newton steps on the joint fit from where the descent stopped, then
 	// the conductors refitted once more without the object's field.
-	jf := newJointFit(loc, pos)
-	if jf == nil {
-		return nil
-	}
-	rss = jf.refine(rss)
-	pos = jf.pos
-	if r, _ = loc.fit(pos); r == nil {
-		return nil
+	// (A vertical line has no joint model: the descent's position stands
+	// and the sigmas are zero, not resolved.)
+	if jf := newJointFit(loc, pos); jf != nil {
+		rss = jf.refine(rss)
+		pos = jf.pos
+		if r, _ = loc.fit(pos); r == nil {
+			return nil
+		}
 	}
 	q, _, _ := without(p, r, len(lines), pos)
 	var err error
@@ -569,9 +569,6 @@ func searchDipole(f *Fit) *dipoleSearch {
 	}
 	loc.srcs = append(append([]inverse.Source(nil), lines...), nil)
 	if r, rss = loc.fit(pos); r == nil {
-		return nil
-	}
-	if jf = newJointFit(loc, pos); jf == nil {
 		return nil
 	}
 	nrhs := 1
@@ -589,9 +586,13 @@ func searchDipole(f *Fit) *dipoleSearch {
 	ds := &dipoleSearch{gain: bic(p, res) - (base + k*math.Log(n))}
 	// Model error left in the readings (a bend of the conductors some
 	// metres away, which the infinite lines miss) is smooth along the
-	// traverse, not white: scale the variance by the AR(1) factor of the
-	// residuals (see residualAR1).
-	sig, momSigma, momAxisSigma := jf.uncertainty(rss, s2, residualAR1(r), r, len(lines))
+	// traverse, not white: the sigmas take the residuals' lag-1
+	// autocorrelation (see residualAR1 and jointFit.uncertainty).
+	var sig, momAxisSigma [3]float64
+	var momSigma float64
+	if jf := newJointFit(loc, pos); jf != nil {
+		sig, momSigma, momAxisSigma = jf.uncertainty(rss, s2, residualAR1(r), r, len(lines))
+	}
 	zref := res.ReferenceZ
 	if res.DepthReference != "ReferenceZ" {
 		var m float64
