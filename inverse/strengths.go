@@ -249,6 +249,37 @@ func strengthsBasis(p *Problem, sources []Source, s Settings, sv *survey) (phi [
 	return phi, m, q, ns, nb, nil
 }
 
+// ReadingBasis returns the field per unit strength of src, in nanotesla, at every
+// reading of p as the fits model it: at the reading's position, or averaged along its
+// path when p.Travel is set (three-point Gauss-Legendre, see Problem.Travel). Element
+// [i][c] is the field at reading i of unit strength c. It is for callers that add or
+// remove a source's field from readings and fit the rest (so that the two agree).
+func ReadingBasis(p *Problem, src Source) ([][][3]float64, error) {
+	if p == nil || src == nil {
+		return nil, errors.New("inverse: ReadingBasis needs a problem and a source")
+	}
+	if p.Travel != nil && len(p.Travel) != len(p.Points) {
+		return nil, fmt.Errorf("inverse: %d travels for %d readings", len(p.Travel), len(p.Points))
+	}
+	n, k := len(p.Points), src.NumStrengths()
+	m := 3 * n
+	col := make([]float64, m*k)
+	if err := sourceBasis(p, src, 0, col, 1, m, 0); err != nil {
+		return nil, err
+	}
+	out := make([][][3]float64, n)
+	flat := make([][3]float64, n*k)
+	for i := range n {
+		out[i] = flat[i*k : (i+1)*k]
+		for c := range k {
+			for j := range 3 {
+				out[i][c][j] = col[c*m+3*i+j]
+			}
+		}
+	}
+	return out, nil
+}
+
 // sourceBasis writes the field per unit strength of src, in nanotesla, at every
 // reading into phi: element (row 3i+j, strength c) goes to phi[row*rs + (col+c)*cs].
 // Point readings take the basis at the point; path-averaged readings (Problem.Travel)

@@ -445,17 +445,25 @@ func moment(p *inverse.Problem, r *inverse.Result, j int) (m, s [3]float64) {
 // fitted in r (strengths from j), removed; field holds that field (DC) or
 // phasor field (AC) per reading, nT.
 func without(p *inverse.Problem, r *inverse.Result, j int, pos [3]float64) (*inverse.Problem, [][3]float64, [][3]complex128) {
-	q := &inverse.Problem{Points: p.Points, Sigma: p.Sigma}
-	d := inverse.Dipole{Pos: pos}
-	basis := make([][3]float64, 3)
+	// The object's field as the fits model every reading: averaged along the
+	// reading's path when the readings are path averages (Problem.Travel),
+	// which q keeps so that the conductors are refitted the same way.
+	q := &inverse.Problem{Points: p.Points, Travel: p.Travel, Sigma: p.Sigma}
+	basis, err := inverse.ReadingBasis(p, inverse.Dipole{Pos: pos})
+	if err != nil {
+		// The object sits on a reading's path: no finite field to remove.
+		basis = make([][][3]float64, len(p.Points))
+		for i := range basis {
+			basis[i] = make([][3]float64, 3)
+		}
+	}
 	if p.Phasors == nil {
 		field := make([][3]float64, len(p.Points))
 		q.Fields = make([][3]float64, len(p.Points))
-		for i, pt := range p.Points {
-			d.Basis(pt, basis)
+		for i := range p.Points {
 			for ax := range 3 {
 				for c := range 3 {
-					field[i][ax] += r.Strengths[j+c] * basis[c][ax] * 1e9
+					field[i][ax] += r.Strengths[j+c] * basis[i][c][ax]
 				}
 				q.Fields[i][ax] = p.Fields[i][ax] - field[i][ax]
 			}
@@ -464,11 +472,10 @@ func without(p *inverse.Problem, r *inverse.Result, j int, pos [3]float64) (*inv
 	}
 	field := make([][3]complex128, len(p.Points))
 	q.Phasors = make([][3]complex128, len(p.Points))
-	for i, pt := range p.Points {
-		d.Basis(pt, basis)
+	for i := range p.Points {
 		for ax := range 3 {
 			for c := range 3 {
-				field[i][ax] += r.StrengthPhasors[j+c] * complex(basis[c][ax]*1e9, 0)
+				field[i][ax] += r.StrengthPhasors[j+c] * complex(basis[i][c][ax], 0)
 			}
 			q.Phasors[i][ax] = p.Phasors[i][ax] - field[i][ax]
 		}
