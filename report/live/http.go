@@ -27,10 +27,12 @@ import (
 //	GET  /readyz                           200 when connected to the broker with streams set up
 //	GET  /metrics                          Prometheus metrics (private registry)
 //	GET  /api/v1/assets                    assets, their settings and which worker holds each
+//	GET  /api/v1/assets/{asset}            the asset as listed, with its last restart request
 //	GET  /api/v1/assets/{asset}/latest     latest estimate
 //	GET  /api/v1/assets/{asset}/history    estimates with from <= start < to, oldest first (?from=&to=&limit=&format=csv)
 //	GET  /api/v1/alarms                    alarms by window start, oldest first (?asset=&kind=&from=&to=&since=&limit=)
 //	POST /api/v1/assets/{asset}/recommission  forget a commissioned geometry (token)
+//	POST /api/v1/assets/{asset}/restart    re-read from ?start= or {"start": ...} (token; 202, see Restarting an asset in the package doc)
 //
 // from and to are window starts on the sensor clock (Unix seconds for live
 // data), given as seconds or RFC 3339; since (alarms) is when the broker
@@ -48,10 +50,12 @@ func (s *Service) Handler() http.Handler {
 	mux.HandleFunc("GET /readyz", s.readyz)
 	mux.Handle("GET /metrics", s.read(promhttp.HandlerFor(s.met.reg, promhttp.HandlerOpts{Registry: s.met.reg})))
 	mux.Handle("GET /api/v1/assets", s.read(http.HandlerFunc(s.assets)))
+	mux.Handle("GET /api/v1/assets/{asset}", s.read(http.HandlerFunc(s.asset)))
 	mux.Handle("GET /api/v1/assets/{asset}/latest", s.read(http.HandlerFunc(s.latest)))
 	mux.Handle("GET /api/v1/assets/{asset}/history", s.read(http.HandlerFunc(s.history)))
 	mux.Handle("GET /api/v1/alarms", s.read(http.HandlerFunc(s.alarmList)))
 	mux.Handle("POST /api/v1/assets/{asset}/recommission", s.write(http.HandlerFunc(s.recommission)))
+	mux.Handle("POST /api/v1/assets/{asset}/restart", s.write(http.HandlerFunc(s.restart)))
 	return mux
 }
 
@@ -135,21 +139,38 @@ type AssetInfo struct {
 	Sensors     []string `json:"sensors"`
 	Conductors  []string `json:"conductors"`
 	Worker      string   `json:"worker,omitempty"` // lease holder
+	Start       string   `json:"start"`            // configured start
+	// Restart is the last restart request (Applied nil while pending).
+	Restart *RestartStatus `json:"restart,omitempty"`
+}
+
+func (s *Service) assetInfo(ctx context.Context, a *AssetConfig) (AssetInfo, error) {
+	ai := AssetInfo{Name: a.Name, Description: a.Description, Mode: a.Mode, Frequency: a.Frequency,
+		Window: a.Window.String(), Model: a.Model, Sensors: []string{}, Conductors: []string{}, Start: a.Start.String()}
+	for _, sn := range a.Sensors {
+		ai.Sensors = append(ai.Sensors, sn.Name)
+	}
+	for _, c := range a.Conductors {
+		ai.Conductors = append(ai.Conductors, c.Name)
+	}
+	if e, err := s.stores.Lease.Get(ctx, a.Name); err == nil {
+		ai.Worker = string(e.Value())
+	}
+	req, _, err := s.restartStatus(ctx, a.Name)
+	if err != nil {
+		return ai, fmt.Errorf("live: asset %s: %w", a.Name, err)
+	}
+	ai.Restart = req
+	return ai, nil
 }
 
 func (s *Service) assets(w http.ResponseWriter, r *http.Request) {
 	out := []AssetInfo{}
-	for _, a := range s.site.Assets {
-		ai := AssetInfo{Name: a.Name, Description: a.Description, Mode: a.Mode, Frequency: a.Frequency,
-			Window: a.Window.String(), Model: a.Model, Sensors: []string{}, Conductors: []string{}}
-		for _, sn := range a.Sensors {
-			ai.Sensors = append(ai.Sensors, sn.Name)
-		}
-		for _, c := range a.Conductors {
-			ai.Conductors = append(ai.Conductors, c.Name)
-		}
-		if e, err := s.stores.Lease.Get(r.Context(), a.Name); err == nil {
-			ai.Worker = string(e.Value())
+	for i := range s.site.Assets {
+		ai, err := s.assetInfo(r.Context(), &s.site.Assets[i])
+		if err != nil {
+			httpError(w, http.StatusBadGateway, err.Error())
+			return
 		}
 		out = append(out, ai)
 	}

@@ -28,6 +28,11 @@ type checkpoint struct {
 	// Start records the site-file start that placed the first checkpoint
 	// (empty when the asset began with everything retained).
 	Start string `json:"start,omitempty"`
+	// Revision counts the restart requests applied to the asset; it
+	// suffixes the message ids (see msgID). Restart is the id of the last
+	// one, so that a successor does not apply it twice.
+	Revision int    `json:"revision,omitempty"`
+	Restart  string `json:"restart,omitempty"`
 }
 
 func checkpointKey(asset string) string { return "checkpoint." + asset }
@@ -83,6 +88,33 @@ func (w *assetWorker) run(ctx context.Context) error {
 	if err := w.loadGeometry(bg); err != nil {
 		return err
 	}
+	// A restart request taken while no worker held the asset.
+	if req, rev, err := w.pendingRestart(); err != nil {
+		return err
+	} else if req != nil {
+		if err := w.applyRestart(req, rev); err != nil {
+			return err
+		}
+	}
+	for {
+		req, rev, err := w.consume(ctx)
+		if err != nil || req == nil {
+			return err
+		}
+		if err := w.applyRestart(req, rev); err != nil {
+			return err
+		}
+	}
+}
+
+// consume reads UC_DATA from the checkpoint until ctx ends, then drains
+// (messages already fetched are processed, complete windows are published
+// and the checkpoint is written) and returns nil. When a restart request
+// for the asset appears it stops at once, without writing a checkpoint
+// (the request replaces it), and returns the request.
+func (w *assetWorker) consume(ctx context.Context) (*RestartStatus, uint64, error) {
+	st := w.svc.stores
+	bg := context.Background()
 	cfg := jetstream.OrderedConsumerConfig{FilterSubjects: []string{broker.DataFilter(w.asset.Name)}, DeliverPolicy: jetstream.DeliverAllPolicy}
 	if w.ck.ResumeSeq > 0 {
 		cfg.DeliverPolicy = jetstream.DeliverByStartSequencePolicy
@@ -90,13 +122,13 @@ func (w *assetWorker) run(ctx context.Context) error {
 	}
 	cons, err := st.JS.OrderedConsumer(bg, broker.StreamData, cfg)
 	if err != nil {
-		return fmt.Errorf("live: asset %s: consumer: %w", w.asset.Name, err)
+		return nil, 0, fmt.Errorf("live: asset %s: consumer: %w", w.asset.Name, err)
 	}
 	it, err := cons.Messages(jetstream.PullMaxMessages(512))
 	if err != nil {
-		return fmt.Errorf("live: asset %s: consumer: %w", w.asset.Name, err)
+		return nil, 0, fmt.Errorf("live: asset %s: consumer: %w", w.asset.Name, err)
 	}
-	w.log.Info("asset acquired", "resume_seq", w.ck.ResumeSeq, "done", w.ck.Done)
+	w.log.Info("asset acquired", "resume_seq", w.ck.ResumeSeq, "done", w.ck.Done, "revision", w.ck.Revision)
 	msgs := make(chan jetstream.Msg, 64)
 	go func() {
 		defer close(msgs)
@@ -108,8 +140,14 @@ func (w *assetWorker) run(ctx context.Context) error {
 			msgs <- m
 		}
 	}()
+	stop := func() {
+		it.Stop()
+		for range msgs {
+		}
+	}
 	tick := time.NewTicker(w.tickEvery())
 	defer tick.Stop()
+	var polled time.Time
 	done := ctx.Done()
 	for {
 		select {
@@ -120,16 +158,29 @@ func (w *assetWorker) run(ctx context.Context) error {
 			if !ok {
 				// Drained: complete windows are published; open ones stay
 				// for the next holder, who rebuilds them from the checkpoint.
-				return w.saveCheckpoint()
+				return nil, 0, w.saveCheckpoint()
 			}
 			if err := w.handle(m); err != nil {
-				it.Stop()
-				return err
+				stop()
+				return nil, 0, err
 			}
-		case <-tick.C:
+		case now := <-tick.C:
 			if err := w.closeReady(time.Now(), w.svc.site.Service.Idle.Duration); err != nil {
-				it.Stop()
-				return err
+				stop()
+				return nil, 0, err
+			}
+			if done == nil || now.Sub(polled) < restartPoll {
+				continue // draining, or looked a moment ago
+			}
+			polled = now
+			req, rev, err := w.pendingRestart()
+			if err != nil {
+				w.log.Warn("restart requests not readable", "err", err)
+				continue
+			}
+			if req != nil {
+				stop()
+				return req, rev, nil
 			}
 		}
 	}
@@ -159,23 +210,9 @@ func (w *assetWorker) placeStart(ctx context.Context) error {
 	}
 	ctx, cancel := context.WithTimeout(ctx, 10*time.Second)
 	defer cancel()
-	st, err := w.svc.stores.JS.Stream(ctx, broker.StreamData)
+	seq, err := w.svc.startSeq(ctx, w.asset.Name, start, wallClock())
 	if err != nil {
 		return fail(err)
-	}
-	info, err := st.Info(ctx)
-	if err != nil {
-		return fail(err)
-	}
-	seq := info.State.LastSeq + 1
-	if set := start.source(wallClock()); !set.From.IsZero() {
-		at, err := w.firstSeqAt(ctx, set.From)
-		if err != nil {
-			return fail(err)
-		}
-		if at > 0 {
-			seq = at
-		}
 	}
 	w.asm.lastSeq = seq - 1
 	w.ck.Start = start.String()
@@ -188,16 +225,16 @@ func (w *assetWorker) placeStart(ctx context.Context) error {
 // message-get API with start_time and next_by_subj, which resolves the
 // time as a DeliverByStartTimePolicy consumer would (the client library
 // does not expose start_time).
-func (w *assetWorker) firstSeqAt(ctx context.Context, t time.Time) (uint64, error) {
+func (s *Service) firstSeqAt(ctx context.Context, asset string, t time.Time) (uint64, error) {
 	req, err := json.Marshal(struct {
 		StartTime time.Time `json:"start_time"`
 		NextFor   string    `json:"next_by_subj"`
 		NoHeaders bool      `json:"no_hdr"`
-	}{t.UTC(), broker.DataFilter(w.asset.Name), true})
+	}{t.UTC(), broker.DataFilter(asset), true})
 	if err != nil {
 		return 0, err
 	}
-	m, err := w.svc.nc.RequestWithContext(ctx, jetstream.DefaultAPIPrefix+"STREAM.MSG.GET."+broker.StreamData, req)
+	m, err := s.nc.RequestWithContext(ctx, jetstream.DefaultAPIPrefix+"STREAM.MSG.GET."+broker.StreamData, req)
 	if err != nil {
 		return 0, fmt.Errorf("message lookup by time: %w", err)
 	}
@@ -345,10 +382,13 @@ func (w *assetWorker) publishWindow(win *window, r *reduced) error {
 	if err != nil {
 		return fmt.Errorf("live: asset %s: encode estimate: %w", w.asset.Name, err)
 	}
-	id := w.asset.Name + "/" + strconv.FormatInt(win.Index, 10)
+	id := w.msgID(win.Index)
 	msg := nats.NewMsg(broker.EstimateSubject(w.asset.Name))
 	msg.Data = data
 	msg.Header.Set(broker.HeaderContentType, broker.ContentJSON)
+	if w.ck.Revision > 0 {
+		msg.Header.Set(HeaderRevision, strconv.Itoa(w.ck.Revision))
+	}
 	ack, err := w.svc.publish(msg, id)
 	if err != nil {
 		return err
@@ -363,6 +403,9 @@ func (w *assetWorker) publishWindow(win *window, r *reduced) error {
 		am := nats.NewMsg(broker.AlarmSubject(w.asset.Name, al.Kind))
 		am.Data = ad
 		am.Header.Set(broker.HeaderContentType, broker.ContentJSON)
+		if w.ck.Revision > 0 {
+			am.Header.Set(HeaderRevision, strconv.Itoa(w.ck.Revision))
+		}
 		aack, err := w.svc.publish(am, id+"/"+al.Kind+"/"+al.Subject)
 		if err != nil {
 			return err
