@@ -68,10 +68,59 @@
 // by the server) and writes it at once as the asset's first checkpoint,
 // so that a restart or takeover before the first window resumes from the
 // same place. Once a checkpoint exists it always wins and the setting is
-// ignored; delete the checkpoint (key "checkpoint.<asset>" in uc_state)
-// to apply a changed start. Times are the broker's storage times, i.e.
-// when the batches reached the broker, not the sensor clocks; the first
-// window may hold only the part of its samples stored after the start.
+// ignored; to apply a changed start, or any other, restart the asset
+// (below). Times are the broker's storage times, i.e. when the batches
+// reached the broker, not the sensor clocks; the first window may hold
+// only the part of its samples stored after the start.
+//
+// # Restarting an asset
+//
+// To re-read an asset from another point (after a calibration change, to
+// backfill, or to skip a flood of bad data), ask any serve process:
+//
+//	curl -X POST -H "Authorization: Bearer $TOKEN" \
+//	  'http://127.0.0.1:8080/api/v1/assets/fenwick-lane/restart?start=2026-12-01T06:00:00Z'
+//	curl -X POST -H "Authorization: Bearer $TOKEN" -H 'Content-Type: application/json' \
+//	  -d '{"start": "new"}' http://127.0.0.1:8080/api/v1/assets/fenwick-lane/restart
+//	curl http://127.0.0.1:8080/api/v1/assets/fenwick-lane   # "restart": {..., "applied": ...}
+//
+// start takes the site file's values; without one the asset's configured
+// start is used. A bad start is refused with 400 and the site file's
+// message, an unknown asset with 404, a request without the service
+// token with 401 (403 when no token is configured). The answer is 202
+// with the request: its id, the start, and the UC_DATA sequence it
+// resolved to. The start is resolved when the request is taken, not when
+// it is applied: "new" skips what is stored up to the request, "24h"
+// counts back from the request, "retained" is the stream's first
+// sequence.
+//
+// The request is stored under "restart.<asset>" in uc_state (a newer
+// request replaces a pending one). The worker holding the asset's lease,
+// in this process or another, looks for it every quarter second or so
+// (and when it takes the asset): it stops its consumer at once, without
+// publishing the windows still open or writing a checkpoint, drops its
+// open windows, its windows waiting for commissioning (a commissioned
+// geometry is kept) and the step alarm's previous currents, writes a new
+// checkpoint resuming at the resolved sequence with the next read
+// revision and the request id, marks the request applied (time, worker,
+// revision) and reads on from there. A holder that stops between the
+// checkpoint and the mark leaves the request pending; its successor finds
+// the id in the checkpoint and only marks it, so nothing is read twice
+// by the same request. Windows are closed from the new position only: no
+// estimate is lost or repeated beyond the range the start asks for.
+//
+// Estimates of windows read again: the read revision counts the restarts
+// applied to the asset (kept in the checkpoint). Estimates and alarms of
+// revision n > 0 are published with the message ids
+// "<asset>/<window>/r<n>" and "<asset>/<window>/r<n>/<kind>/<subject>"
+// and the header Uc-Revision: n, so a re-read window is always stored
+// again (never swallowed by the broker's duplicate window, one hour by
+// default), while within one revision a window published twice by a
+// takeover is still stored once. History and the alarm listing then
+// hold one entry per window and revision, oldest first; the last one
+// stored for a window (highest revision) supersedes the others, and
+// latest shows it. Deleting a checkpoint by hand resets the revision to
+// 0, whose ids the broker deduplicates within its window.
 //
 // # Alarms
 //

@@ -90,6 +90,9 @@ func (s *Service) startSeq(ctx context.Context, asset string, start Start, now t
 // (the asset's configured start when start is nil) and returns it. The
 // worker holding the asset, in this process or another, applies it.
 func (s *Service) RequestRestart(ctx context.Context, asset string, start *Start) (*RestartStatus, error) {
+	if s.stores == nil {
+		return nil, errors.New("live: restart: the service is not running")
+	}
 	a := s.site.Asset(asset)
 	if a == nil {
 		return nil, fmt.Errorf("live: restart: no asset %q in the site file", asset)
