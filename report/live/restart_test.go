@@ -183,9 +183,25 @@ func TestRestartNewSkipsBacklog(t *testing.T) {
 	if _, err := kv.Create(context.Background(), "fenwick-lane", []byte("ghost")); err != nil {
 		t.Fatal(err)
 	}
+	// The ghost keeps its lease alive until the request is taken.
+	ghost := make(chan struct{})
+	renewed := make(chan struct{})
+	go func() {
+		defer close(renewed)
+		for {
+			select {
+			case <-ghost:
+				return
+			case <-time.After(200 * time.Millisecond):
+				kv.Put(context.Background(), "fenwick-lane", []byte("ghost"))
+			}
+		}
+	}()
 	h.publish(2, 2) // the backlog: windows 4..7
 	r2 := h.start(site, "w2")
 	req := requestRestart(t, r2, "?start=new", "")
+	close(ghost)
+	<-renewed
 	if req.Start != "new" || req.Seq != 2*oldMessages+1 {
 		t.Errorf("request %+v, want start \"new\" at sequence %d", req, 2*oldMessages+1)
 	}
@@ -231,6 +247,26 @@ func TestRestartFromTimeRereads(t *testing.T) {
 	waitFor(t, 30*time.Second, "8 estimates", func() bool { return len(h.estimates()) >= 8 })
 	r.stop(t)
 	checkRevisions(t, h.storedEstimates(), map[string][]int64{"": {0, 1, 2, 3}, "1": {2, 3, 4, 5}})
+	// max_current = 1035 A: windows 4 and 5 (1041 and 1051 A) raise
+	// over-current, in revision 1.
+	ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
+	defer cancel()
+	st, err := h.js.Stream(ctx, broker.StreamAlarms)
+	if err != nil {
+		t.Fatal(err)
+	}
+	info, _ := st.Info(ctx)
+	var ids []string
+	for seq := info.State.FirstSeq; seq > 0 && seq <= info.State.LastSeq; seq++ {
+		if m, err := st.GetMsg(ctx, seq); err == nil && m.Subject == broker.AlarmSubject("fenwick-lane", AlarmOverCurrent) {
+			ids = append(ids, m.Header.Get("Nats-Msg-Id")+" rev "+m.Header.Get(HeaderRevision))
+		}
+	}
+	k0 := int64(math.Floor(t0/0.5 + 1e-7))
+	want := []string{fmt.Sprintf("fenwick-lane/%d/r1/over-current/go rev 1", k0+4), fmt.Sprintf("fenwick-lane/%d/r1/over-current/go rev 1", k0+5)}
+	if fmt.Sprint(ids) != fmt.Sprint(want) {
+		t.Errorf("over-current alarms %q, want %q", ids, want)
+	}
 }
 
 // A restart taken by one serve process is applied by the other, which
