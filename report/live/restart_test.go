@@ -432,3 +432,30 @@ func TestRestartParams(t *testing.T) {
 		}
 	}
 }
+
+// BenchmarkRestartPoll is the cost of one look for a restart request, made
+// by each held asset about four times a second (loopback broker).
+func BenchmarkRestartPoll(b *testing.B) {
+	h := newHarness(b)
+	r := h.start(testSite(b, testSiteText), "w1")
+	r.stop(b) // no holder applies the request; the connection stays open
+	w, err := r.svc.newAssetWorker(r.svc.site.Asset("fenwick-lane"))
+	if err != nil {
+		b.Fatal(err)
+	}
+	for _, pending := range []bool{false, true} {
+		b.Run(fmt.Sprintf("pending=%v", pending), func(b *testing.B) {
+			if pending {
+				if _, err := r.svc.RequestRestart(context.Background(), "fenwick-lane", nil); err != nil {
+					b.Fatal(err)
+				}
+			}
+			for b.Loop() {
+				req, _, err := w.pendingRestart()
+				if err != nil || (req != nil) != pending {
+					b.Fatalf("pending request %v, %v; want one: %v", req, err, pending)
+				}
+			}
+		})
+	}
+}
