@@ -217,7 +217,7 @@ func TestRestartNewSkipsBacklog(t *testing.T) {
 	r2.stop(t)
 	checkRevisions(t, h.storedEstimates(), map[string][]int64{"": {0, 1, 2, 3}, "1": {8, 9, 10, 11}})
 	if ck := h.readCheckpoint("fenwick-lane"); ck == nil || ck.Revision != 1 || ck.Restart != req.ID || ck.Start != "new" {
-		t.Errorf("checkpoint %+v, want revision 1 recording request %s and start \"new\"", ck, req.ID)
+		t.Errorf("checkpoint %+v, want revision 1 holding request %s and start \"new\"", ck, req.ID)
 	}
 }
 

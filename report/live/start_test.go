@@ -135,7 +135,7 @@ func TestStartFromTime(t *testing.T) {
 			r.stop(t)
 			checkWindows(t, h.estimates(), 4, 8)
 			if ck := h.readCheckpoint("fenwick-lane"); ck == nil || ck.Start != tc.start(mark) {
-				t.Errorf("checkpoint %+v, want one recording start %q", ck, tc.start(mark))
+				t.Errorf("checkpoint %+v, want one holding start %q", ck, tc.start(mark))
 			}
 		})
 	}
