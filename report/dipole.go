@@ -534,17 +534,25 @@ func searchDipole(f *Fit) *dipoleSearch {
 	fs.Count, fs.MaxCount, fs.Dipoles = 0, len(lines), 0
 	var lr *inverse.Result
 	var rss float64
-	for range dipoleRounds {
+	// refit refits the conductors on the readings without the object's
+	// field and holds them in loc.
+	refit := func() bool {
 		q, _, _ := without(p, r, len(lines), pos)
 		var err error
 		if lr, err = inverse.FitLines(q, &fs); err != nil || len(lr.Sources) == 0 {
-			return nil
+			return false
 		}
 		lines = lines[:0]
 		for _, s := range lr.Sources {
 			lines = append(lines, inverse.Line{Point: s.Point, Dir: s.Dir})
 		}
 		loc.srcs = append(append([]inverse.Source(nil), lines...), nil)
+		return true
+	}
+	for range dipoleRounds {
+		if !refit() {
+			return nil
+		}
 		prev := pos
 		pos, rss = loc.locate(&pos)
 		if r, _ = loc.fit(pos); r == nil {
@@ -565,16 +573,9 @@ func searchDipole(f *Fit) *dipoleSearch {
 			return nil
 		}
 	}
-	q, _, _ := without(p, r, len(lines), pos)
-	var err error
-	if lr, err = inverse.FitLines(q, &fs); err != nil || len(lr.Sources) == 0 {
+	if !refit() {
 		return nil
 	}
-	lines = lines[:0]
-	for _, s := range lr.Sources {
-		lines = append(lines, inverse.Line{Point: s.Point, Dir: s.Dir})
-	}
-	loc.srcs = append(append([]inverse.Source(nil), lines...), nil)
 	if r, rss = loc.fit(pos); r == nil {
 		return nil
 	}
