@@ -28,6 +28,10 @@ type Estimate struct {
 	// Closed says why the window closed: complete, grace or idle.
 	Closed string `json:"closed"`
 	Worker string `json:"worker"`
+	// Revision is the asset's read revision when the window was solved:
+	// 0 until the asset is first restarted, n after the n-th restart (see
+	// HeaderRevision). A window read again supersedes its lower revisions.
+	Revision int `json:"revision,omitempty"`
 }
 
 // ConductorEstimate is one conductor's current in a window.
@@ -53,6 +57,8 @@ type Alarm struct {
 	Value     float64 `json:"value"`
 	Threshold float64 `json:"threshold"`
 	Message   string  `json:"message"`
+	// Revision is the read revision of the estimate that raised the alarm.
+	Revision int `json:"revision,omitempty"`
 }
 
 // Alarm kinds.

@@ -6,6 +6,7 @@ import (
 	"errors"
 	"fmt"
 	"sort"
+	"strconv"
 	"time"
 
 	"github.com/nats-io/nats.go/jetstream"
@@ -23,9 +24,29 @@ const (
 	MaxQueryLimit = 100000
 )
 
+// QueryOption changes what History and Alarms return.
+type QueryOption func(*queryOptions)
+
+type queryOptions struct{ all bool }
+
+// AllRevisions makes History and Alarms return every stored revision of
+// each window (sorted by window start, then revision, then storage
+// order) instead of only the highest one.
+func AllRevisions() QueryOption { return func(o *queryOptions) { o.all = true } }
+
+func queryOpts(opts []QueryOption) queryOptions {
+	var o queryOptions
+	for _, f := range opts {
+		f(&o)
+	}
+	return o
+}
+
 // History returns the estimates of asset with from <= Start < to, oldest
 // first, at most limit of them (the first limit of the range), read from
-// the UC_EST stream.
+// the UC_EST stream. Of a window stored in several read revisions (the
+// asset was restarted, see the package doc) only the highest revision is
+// returned, unless the AllRevisions option is given.
 //
 // It does not read the asset's whole history: the start of the range is
 // found by a binary search over stream sequences (each probe is one
@@ -33,19 +54,25 @@ const (
 // lookup, so about log2(stream length) probes), an ordered consumer is
 // started at that sequence, and reading stops at the first estimate that
 // starts at or after to, or at limit. This relies on the estimates of one
-// asset being stored in window order, which the pipeline guarantees (one
-// worker per asset, windows published in order, re-publications after a
-// takeover dropped by the stream's deduplication).
-func (s *Service) History(ctx context.Context, asset string, from, to float64, limit int) ([]Estimate, error) {
-	out := []Estimate{}
+// asset and read revision being stored in window order, which the
+// pipeline guarantees (one worker per asset, windows published in order,
+// re-publications after a takeover dropped by the stream's
+// deduplication), and on read revisions never decreasing along the
+// stream. For an asset that has been restarted the stream is one such
+// run per revision; each run is found and searched on its own (see
+// readRevisions).
+func (s *Service) History(ctx context.Context, asset string, from, to float64, limit int, opts ...QueryOption) ([]Estimate, error) {
+	o := queryOpts(opts)
 	limit = clampLimit(limit)
-	err := s.readRange(ctx, "history", broker.StreamEstimates, broker.EstimateSubject(asset), from, to, time.Time{}, func(data []byte) bool {
+	runs, err := readRevisions(s, ctx, "history", broker.StreamEstimates, broker.EstimateSubject(asset), asset, from, to, time.Time{}, limit, func(data []byte) (Estimate, float64, bool) {
 		var e Estimate
 		if json.Unmarshal(data, &e) != nil {
-			return true
+			return e, 0, false
 		}
-		out = append(out, e)
-		return len(out) < limit
+		return e, e.Start, true
+	})
+	out := pickRevisions(runs, o.all, limit, func(e Estimate) float64 { return e.Start }, func(e Estimate) string {
+		return strconv.FormatInt(e.Window, 10)
 	})
 	return out, err
 }
@@ -56,8 +83,13 @@ func (s *Service) History(ctx context.Context, asset string, from, to float64, l
 // They are sorted by window start, oldest first; at most limit are
 // returned (the oldest of the range). Each asset's alarms are positioned
 // and read as in History (the kind filter is applied by the broker), so
-// the cost grows with the answer, not with the stored history.
-func (s *Service) Alarms(ctx context.Context, asset, kind string, from, to float64, since time.Time, limit int) ([]Alarm, error) {
+// the cost grows with the answer, not with the stored history. Of an
+// alarm stored in several read revisions (same asset, window, kind and
+// subject) only the highest revision is returned, unless the
+// AllRevisions option is given. An alarm raised by a lower revision is
+// still listed when the re-read window no longer raises it.
+func (s *Service) Alarms(ctx context.Context, asset, kind string, from, to float64, since time.Time, limit int, opts ...QueryOption) ([]Alarm, error) {
+	o := queryOpts(opts)
 	limit = clampLimit(limit)
 	var assets []string
 	if asset != "" {
@@ -74,16 +106,16 @@ func (s *Service) Alarms(ctx context.Context, asset, kind string, from, to float
 		if kind != "" {
 			subject = broker.AlarmSubject(name, kind)
 		}
-		n := 0
-		err := s.readRange(ctx, "alarms", broker.StreamAlarms, subject, from, to, since, func(data []byte) bool {
+		runs, err := readRevisions(s, ctx, "alarms", broker.StreamAlarms, subject, name, from, to, since, limit, func(data []byte) (Alarm, float64, bool) {
 			var a Alarm
 			if json.Unmarshal(data, &a) != nil {
-				return true
+				return a, 0, false
 			}
-			out = append(out, a)
-			n++
-			return n < limit
+			return a, a.Start, true
 		})
+		out = append(out, pickRevisions(runs, o.all, limit, func(a Alarm) float64 { return a.Start }, func(a Alarm) string {
+			return strconv.FormatInt(a.Window, 10) + "/" + a.Kind + "/" + a.Subject
+		})...)
 		if err != nil {
 			return out, err
 		}
@@ -93,6 +125,115 @@ func (s *Service) Alarms(ctx context.Context, asset, kind string, from, to float
 		out = out[:limit]
 	}
 	return out, nil
+}
+
+// revisionRun is the part [lo, hi) of a stream's sequences holding the
+// messages of one read revision on a subject.
+type revisionRun struct {
+	rev    int
+	lo, hi uint64
+}
+
+// readRevisions reads the messages on subject whose start is in
+// [from, to) and that were stored at or after since, revision run by
+// revision run, decoding each with dec (messages it refuses are
+// skipped). It returns one slice per run, in increasing revision; within
+// a run in stream order, which is start order.
+//
+// The rule: an asset's read revision (HeaderRevision, 0 when absent)
+// never decreases along the stream, and within one revision its messages
+// are in start order; a restart that re-reads old windows stores them
+// again later in the stream, so start order breaks only where the
+// revision grows. The highest revision ever used is that of the asset's
+// newest estimate (one lookup; alarms of a revision are published after
+// its estimate). When it is 0 (never restarted) the subject is a single
+// run over the whole stream and the query is exactly as before. Otherwise
+// each non-empty run is found by a binary search on the revision (its
+// first message, then the first sequence whose next message has a higher
+// revision), and the range is positioned and read within each run as in
+// History. So a query costs, per non-empty revision run, about
+// 2 log2(stream length) probes plus the messages it returns from that run
+// (at most limit each, plus the rest of the last window read, so that a
+// window cut by the limit in a newer run is not shown from an older
+// one).
+func readRevisions[T any](s *Service, ctx context.Context, query, stream, subject, asset string, from, to float64, since time.Time, limit int, dec func([]byte) (T, float64, bool)) ([][]T, error) {
+	if !(from < to) {
+		return nil, nil
+	}
+	q, err := s.openQuery(ctx, query, stream, subject)
+	if err != nil || q == nil {
+		return nil, err
+	}
+	top, err := q.topRevision(ctx, asset)
+	if err != nil {
+		return nil, err
+	}
+	runs := []revisionRun{{0, q.info.State.FirstSeq, q.info.State.LastSeq + 1}}
+	if top > 0 {
+		if runs, err = q.revisionRuns(ctx); err != nil {
+			return nil, err
+		}
+	}
+	var out [][]T
+	for _, run := range runs {
+		var got []T
+		last := 0.0
+		err := q.readRun(ctx, run, from, to, since, func(data []byte) bool {
+			v, start, ok := dec(data)
+			if !ok {
+				return true
+			}
+			if len(got) >= limit && start > last {
+				return false
+			}
+			got = append(got, v)
+			last = start
+			// With one run the first limit are the answer; with several,
+			// read the rest of the last window too.
+			return len(runs) > 1 || len(got) < limit
+		})
+		out = append(out, got)
+		if err != nil {
+			return out, err
+		}
+	}
+	return out, nil
+}
+
+// pickRevisions merges the runs of readRevisions into one list sorted by
+// start (stable: among equal starts lower revisions, then older messages,
+// first), keeping with all every message and otherwise only the last one
+// of each key (the highest revision, and within it the newest), and
+// returns its first limit.
+func pickRevisions[T any](runs [][]T, all bool, limit int, start func(T) float64, key func(T) string) []T {
+	out := []T{}
+	if all {
+		for _, r := range runs {
+			out = append(out, r...)
+		}
+	} else {
+		type at struct{ run, i int }
+		best := map[string]at{}
+		for ri, r := range runs {
+			for i, v := range r {
+				best[key(v)] = at{ri, i}
+			}
+		}
+		for ri, r := range runs {
+			for i, v := range r {
+				if best[key(v)] == (at{ri, i}) {
+					out = append(out, v)
+				}
+			}
+		}
+	}
+	if len(runs) > 1 {
+		sort.SliceStable(out, func(i, j int) bool { return start(out[i]) < start(out[j]) })
+	}
+	if len(out) > limit {
+		out = out[:limit]
+	}
+	return out
 }
 
 func clampLimit(limit int) int {
@@ -113,105 +254,197 @@ func startOf(data []byte) (float64, bool) {
 	return *v.Start, true
 }
 
-// readRange calls f, in stream order, with each message on subject whose
-// start is in [from, to) and that was stored at or after since, until f
-// returns false, a message starting at or after to is met, or the
-// messages stored when the read began are exhausted. Messages on subject
-// must be stored in nondecreasing start order. Every message fetched from
-// the broker (positioning probes included) is counted in
-// uc_query_messages_read_total{query}.
-func (s *Service) readRange(ctx context.Context, query, stream, subject string, from, to float64, since time.Time, f func([]byte) bool) error {
-	reads := s.met.queryReads.WithLabelValues(query)
-	fail := func(err error) error { return fmt.Errorf("live: %s query on %s: %w", query, stream, err) }
-	if !(from < to) {
-		return nil
-	}
+// rangeQuery is one History or Alarms read of a subject of a stream, with
+// the stream's state when the read began.
+type rangeQuery struct {
+	s       *Service
+	st      jetstream.Stream
+	info    *jetstream.StreamInfo
+	stream  string
+	subject string
+	query   string
+	reads   interface{ Inc() }
+}
+
+func (q *rangeQuery) fail(err error) error {
+	return fmt.Errorf("live: %s query on %s: %w", q.query, q.stream, err)
+}
+
+// openQuery prepares a read of subject in stream; nil when the stream is
+// empty.
+func (s *Service) openQuery(ctx context.Context, query, stream, subject string) (*rangeQuery, error) {
+	q := &rangeQuery{s: s, stream: stream, subject: subject, query: query, reads: s.met.queryReads.WithLabelValues(query)}
 	st, err := s.stores.JS.Stream(ctx, stream)
 	if err != nil {
-		return fail(err)
+		return nil, q.fail(err)
 	}
 	info, err := st.Info(ctx)
 	if err != nil {
-		return fail(err)
+		return nil, q.fail(err)
 	}
 	if info.State.Msgs == 0 {
-		return nil
+		return nil, nil
 	}
-	// probe returns the first message on subject at or after sequence q
-	// (nil when there is none) and whether it is inside the range start.
-	probe := func(q uint64) (*jetstream.RawStreamMsg, bool, error) {
-		m, err := st.GetMsg(ctx, q, jetstream.WithGetMsgSubject(subject))
-		if errors.Is(err, jetstream.ErrMsgNotFound) {
-			return nil, true, nil
+	q.st, q.info = st, info
+	return q, nil
+}
+
+// msgRevision is the read revision of a stored message: its
+// HeaderRevision, else the payload's "revision", else 0.
+func msgRevision(m *jetstream.RawStreamMsg) int {
+	if v := m.Header.Get(HeaderRevision); v != "" {
+		if n, err := strconv.Atoi(v); err == nil {
+			return n
 		}
-		if err != nil {
-			return nil, false, fail(err)
-		}
-		reads.Inc()
-		start, ok := startOf(m.Data)
-		return m, ok && start >= from && !m.Time.Before(since), nil
 	}
-	// Smallest q in [first, last+1] whose next message is in range (or
-	// absent): the predicate is monotonic in q.
-	lo, hi := info.State.FirstSeq, info.State.LastSeq+1
+	var p struct {
+		Revision int `json:"revision"`
+	}
+	json.Unmarshal(m.Data, &p)
+	return p.Revision
+}
+
+// topRevision is the read revision of the asset's newest estimate (0 when
+// it has none): the highest revision any of its estimates or alarms
+// stored so far carries. It is one message read.
+func (q *rangeQuery) topRevision(ctx context.Context, asset string) (int, error) {
+	st := q.st
+	if q.stream != broker.StreamEstimates {
+		var err error
+		if st, err = q.s.stores.JS.Stream(ctx, broker.StreamEstimates); err != nil {
+			return 0, q.fail(err)
+		}
+	}
+	m, err := st.GetLastMsgForSubject(ctx, broker.EstimateSubject(asset))
+	if errors.Is(err, jetstream.ErrMsgNotFound) {
+		return 0, nil
+	}
+	if err != nil {
+		return 0, q.fail(err)
+	}
+	q.reads.Inc()
+	return msgRevision(m), nil
+}
+
+// next returns the first message on the subject at or after sequence
+// seq and before end (nil when there is none).
+func (q *rangeQuery) next(ctx context.Context, seq, end uint64) (*jetstream.RawStreamMsg, error) {
+	if seq >= end {
+		return nil, nil
+	}
+	m, err := q.st.GetMsg(ctx, seq, jetstream.WithGetMsgSubject(q.subject))
+	if errors.Is(err, jetstream.ErrMsgNotFound) {
+		return nil, nil
+	}
+	if err != nil {
+		return nil, q.fail(err)
+	}
+	q.reads.Inc()
+	if m.Sequence >= end {
+		return nil, nil
+	}
+	return m, nil
+}
+
+// search returns the smallest q in [lo, hi] whose next message before hi
+// is absent or satisfies in; in must be monotonic along the run.
+func (q *rangeQuery) search(ctx context.Context, lo, hi uint64, in func(*jetstream.RawStreamMsg) bool) (uint64, error) {
+	end := hi
 	for lo < hi {
 		mid := lo + (hi-lo)/2
-		m, in, err := probe(mid)
+		m, err := q.next(ctx, mid, end)
 		if err != nil {
-			return err
+			return 0, err
 		}
-		switch {
-		case in:
+		if m == nil || in(m) {
 			hi = mid
-		default:
+		} else {
 			lo = m.Sequence + 1
 		}
 	}
-	if lo > info.State.LastSeq {
-		return nil
+	return lo, nil
+}
+
+// revisionRuns splits the subject's stored messages into runs of one
+// read revision each, skipping revisions that have none.
+func (q *rangeQuery) revisionRuns(ctx context.Context) ([]revisionRun, error) {
+	var runs []revisionRun
+	end := q.info.State.LastSeq + 1
+	for lo := q.info.State.FirstSeq; lo < end; {
+		m, err := q.next(ctx, lo, end)
+		if err != nil {
+			return nil, err
+		}
+		if m == nil {
+			break
+		}
+		rev := msgRevision(m)
+		hi, err := q.search(ctx, m.Sequence+1, end, func(n *jetstream.RawStreamMsg) bool { return msgRevision(n) > rev })
+		if err != nil {
+			return nil, err
+		}
+		runs = append(runs, revisionRun{rev, m.Sequence, hi})
+		lo = hi
 	}
-	first, in, err := probe(lo)
+	return runs, nil
+}
+
+// readRun calls f, in stream order, with each message of the run whose
+// start is in [from, to) and that was stored at or after since, until f
+// returns false, a message starting at or after to is met, or the run
+// ends. Messages of the run must be stored in nondecreasing start order.
+// Every message fetched from the broker (positioning probes included) is
+// counted in uc_query_messages_read_total{query}.
+func (q *rangeQuery) readRun(ctx context.Context, run revisionRun, from, to float64, since time.Time, f func([]byte) bool) error {
+	inRange := func(m *jetstream.RawStreamMsg) bool {
+		start, ok := startOf(m.Data)
+		return ok && start >= from && !m.Time.Before(since)
+	}
+	// Smallest q in the run whose next message is in range (or absent):
+	// the predicate is monotonic in q.
+	lo, err := q.search(ctx, run.lo, run.hi, inRange)
 	if err != nil {
 		return err
 	}
-	if first == nil || !in {
-		return nil
+	first, err := q.next(ctx, lo, run.hi)
+	if err != nil || first == nil || !inRange(first) {
+		return err
 	}
 	if start, _ := startOf(first.Data); start >= to {
 		return nil
 	}
-	cons, err := s.stores.JS.OrderedConsumer(ctx, stream, jetstream.OrderedConsumerConfig{
-		FilterSubjects: []string{subject},
+	cons, err := q.s.stores.JS.OrderedConsumer(ctx, q.stream, jetstream.OrderedConsumerConfig{
+		FilterSubjects: []string{q.subject},
 		DeliverPolicy:  jetstream.DeliverByStartSequencePolicy,
 		OptStartSeq:    first.Sequence,
 		// The server forgets the consumer soon after the query.
 		InactiveThreshold: 10 * time.Second,
 	})
 	if err != nil {
-		return fail(err)
+		return q.fail(err)
 	}
 	// Fetch in growing batches, never more than are pending, so that the
 	// messages read past the end of the range stay few.
 	batch, pending := 1, uint64(1)
 	for {
 		n := int(min(uint64(batch), pending))
-		done, got, err := s.fetchRange(ctx, cons, n, to, info.State.LastSeq, reads, &pending, f)
+		done, got, err := q.s.fetchRange(ctx, cons, n, to, run.hi, q.reads, &pending, f)
 		if err != nil {
-			return fail(err)
+			return q.fail(err)
 		}
 		if done {
 			return nil
 		}
 		if got == 0 {
-			return fail(fmt.Errorf("no message within 10 s although %d are pending", pending))
+			return q.fail(fmt.Errorf("no message within 10 s although %d are pending", pending))
 		}
 		batch = min(2*batch, 256)
 	}
 }
 
-// fetchRange fetches n messages for readRange and hands them to f; done
-// reports that the read is over.
-func (s *Service) fetchRange(ctx context.Context, cons jetstream.Consumer, n int, to float64, last uint64, reads interface{ Inc() }, pending *uint64, f func([]byte) bool) (done bool, got int, err error) {
+// fetchRange fetches n messages for readRun and hands them to f, up to
+// sequence end (exclusive); done reports that the read is over.
+func (s *Service) fetchRange(ctx context.Context, cons jetstream.Consumer, n int, to float64, end uint64, reads interface{ Inc() }, pending *uint64, f func([]byte) bool) (done bool, got int, err error) {
 	fctx, cancel := context.WithTimeout(ctx, 10*time.Second)
 	defer cancel()
 	mb, err := cons.Fetch(n, jetstream.FetchContext(fctx))
@@ -226,10 +459,13 @@ func (s *Service) fetchRange(ctx context.Context, cons jetstream.Consumer, n int
 			return false, got, err
 		}
 		*pending = md.NumPending
+		if md.Sequence.Stream >= end {
+			return true, got, nil
+		}
 		if start, ok := startOf(m.Data()); ok && start >= to {
 			return true, got, nil
 		}
-		if !f(m.Data()) || md.Sequence.Stream >= last || *pending == 0 {
+		if !f(m.Data()) || md.Sequence.Stream+1 >= end || *pending == 0 {
 			return true, got, nil
 		}
 	}

@@ -29,8 +29,8 @@ import (
 //	GET  /api/v1/assets                    assets, their settings and which worker holds each
 //	GET  /api/v1/assets/{asset}            the asset as listed, with its last restart request
 //	GET  /api/v1/assets/{asset}/latest     latest estimate
-//	GET  /api/v1/assets/{asset}/history    estimates with from <= start < to, oldest first (?from=&to=&limit=&format=csv)
-//	GET  /api/v1/alarms                    alarms by window start, oldest first (?asset=&kind=&from=&to=&since=&limit=)
+//	GET  /api/v1/assets/{asset}/history    estimates with from <= start < to, oldest first (?from=&to=&limit=&revisions=&format=csv)
+//	GET  /api/v1/alarms                    alarms by window start, oldest first (?asset=&kind=&from=&to=&since=&limit=&revisions=)
 //	POST /api/v1/assets/{asset}/recommission  forget a commissioned geometry (token)
 //	POST /api/v1/assets/{asset}/restart    re-read from ?start= or {"start": ...} (token; 202, see Restarting an asset in the package doc)
 //
@@ -41,7 +41,14 @@ import (
 // most MaxQueryLimit): the first ones of the range, so a client pages by
 // asking again from just after the last start it received. Queries are
 // positioned in the stored streams by the broker and read only about as
-// many messages as they return (see History). Read endpoints are open when the API listens on
+// many messages as they return (see History). A window read again after
+// a restart is listed once, at its highest read revision ("revision" in
+// the JSON, 0 and omitted before the first restart); revisions=all lists
+// every revision, sorted by start and then revision (revisions=latest is
+// the default). The CSV history has one row per window and conductor
+// and ends with a revision column, after the columns it always had, so
+// readers that take columns by position or by name keep working.
+// Read endpoints are open when the API listens on
 // loopback; otherwise, and for every state-changing endpoint, the request
 // needs "Authorization: Bearer TOKEN" with the site's service token.
 func (s *Service) Handler() http.Handler {
@@ -208,6 +215,7 @@ type query struct {
 	from, to float64
 	since    time.Time
 	limit    int
+	opts     []QueryOption
 }
 
 func parseQuery(r *http.Request) (query, error) {
@@ -242,6 +250,13 @@ func parseQuery(r *http.Request) (query, error) {
 		sec, frac := math.Modf(t)
 		q.since = time.Unix(int64(sec), int64(frac*1e9))
 	}
+	switch v := r.URL.Query().Get("revisions"); v {
+	case "", "latest":
+	case "all":
+		q.opts = append(q.opts, AllRevisions())
+	default:
+		return q, fmt.Errorf("parameter revisions: %q is neither \"latest\" nor \"all\"", v)
+	}
 	return q, nil
 }
 
@@ -266,7 +281,7 @@ func (s *Service) history(w http.ResponseWriter, r *http.Request) {
 		httpError(w, http.StatusBadRequest, err.Error())
 		return
 	}
-	ests, err := s.History(r.Context(), a.Name, q.from, q.to, q.limit)
+	ests, err := s.History(r.Context(), a.Name, q.from, q.to, q.limit, q.opts...)
 	if err != nil {
 		httpError(w, http.StatusBadGateway, err.Error())
 		return
@@ -278,11 +293,12 @@ func (s *Service) history(w http.ResponseWriter, r *http.Request) {
 	writeJSON(w, ests)
 }
 
-// writeEstimatesCSV writes one row per window and conductor.
+// writeEstimatesCSV writes one row per window and conductor; revision is
+// the last column so that the earlier columns keep their places.
 func writeEstimatesCSV(w http.ResponseWriter, ests []Estimate) {
 	w.Header().Set("Content-Type", "text/csv")
 	cw := csv.NewWriter(w)
-	cw.Write([]string{"asset", "window", "start", "end", "conductor", "current_a", "current_sigma_a", "phase_deg", "phase_sigma_deg", "rms_nt", "chi2", "dof", "quality", "sensors"})
+	cw.Write([]string{"asset", "window", "start", "end", "conductor", "current_a", "current_sigma_a", "phase_deg", "phase_sigma_deg", "rms_nt", "chi2", "dof", "quality", "sensors", "revision"})
 	f := func(v float64) string { return strconv.FormatFloat(v, 'g', 10, 64) }
 	for _, e := range ests {
 		for _, c := range e.Conductors {
@@ -291,10 +307,10 @@ func writeEstimatesCSV(w http.ResponseWriter, ests []Estimate) {
 				ph, phs = f(*c.Phase), f(*c.PhaseSigma)
 			}
 			cw.Write([]string{e.Asset, strconv.FormatInt(e.Window, 10), f(e.Start), f(e.End), c.Name, f(c.Current), f(c.CurrentSigma),
-				ph, phs, f(e.RMS), f(e.Chi2), strconv.Itoa(e.DOF), e.Quality, strconv.Itoa(e.Sensors)})
+				ph, phs, f(e.RMS), f(e.Chi2), strconv.Itoa(e.DOF), e.Quality, strconv.Itoa(e.Sensors), strconv.Itoa(e.Revision)})
 		}
 		if len(e.Conductors) == 0 {
-			cw.Write([]string{e.Asset, strconv.FormatInt(e.Window, 10), f(e.Start), f(e.End), "", "", "", "", "", f(e.RMS), f(e.Chi2), strconv.Itoa(e.DOF), e.Quality, strconv.Itoa(e.Sensors)})
+			cw.Write([]string{e.Asset, strconv.FormatInt(e.Window, 10), f(e.Start), f(e.End), "", "", "", "", "", f(e.RMS), f(e.Chi2), strconv.Itoa(e.DOF), e.Quality, strconv.Itoa(e.Sensors), strconv.Itoa(e.Revision)})
 		}
 	}
 	cw.Flush()
@@ -315,7 +331,7 @@ func (s *Service) alarmList(w http.ResponseWriter, r *http.Request) {
 		httpError(w, http.StatusBadRequest, fmt.Sprintf("parameter kind: %q is not an alarm kind", kind))
 		return
 	}
-	list, err := s.Alarms(r.Context(), asset, kind, q.from, q.to, q.since, q.limit)
+	list, err := s.Alarms(r.Context(), asset, kind, q.from, q.to, q.since, q.limit, q.opts...)
 	if err != nil {
 		httpError(w, http.StatusBadGateway, err.Error())
 		return

@@ -17,6 +17,9 @@ type processor struct {
 	names  []string                 // conductor names in estimator order
 	prev   map[string]float64       // previous window's currents (step alarm)
 	worker string
+	// revision is the asset's read revision, copied into every estimate
+	// and alarm; the worker keeps it equal to its checkpoint's.
+	revision int
 }
 
 func newProcessor(a *AssetConfig, worker string) (*processor, error) {
@@ -172,7 +175,7 @@ func mean(v []float64) float64 {
 func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 	a := p.asset
 	e := &Estimate{Asset: a.Name, Window: w.Index, Start: w.Start, End: w.End, Mode: a.Mode,
-		Sensors: len(r.used), Samples: r.samples, Closed: w.Reason, Worker: p.worker, Conductors: []ConductorEstimate{}}
+		Sensors: len(r.used), Samples: r.samples, Closed: w.Reason, Worker: p.worker, Conductors: []ConductorEstimate{}, Revision: p.revision}
 	if len(r.missing) > 0 {
 		e.Missing = r.missing
 	}
@@ -237,5 +240,5 @@ func cmplxAbs(c complex128) float64 { return math.Hypot(real(c), imag(c)) }
 
 func (p *processor) alarm(w *window, kind, subject string, value, threshold float64, msg string) Alarm {
 	return Alarm{Asset: p.asset.Name, Kind: kind, Window: w.Index, Start: w.Start, End: w.End,
-		Subject: subject, Value: value, Threshold: threshold, Message: msg}
+		Subject: subject, Value: value, Threshold: threshold, Message: msg, Revision: p.revision}
 }

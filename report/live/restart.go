@@ -216,8 +216,12 @@ func (s *Service) asset(w http.ResponseWriter, r *http.Request) {
 }
 
 // pendingRestart returns the asset's restart request when it is not yet
-// applied, with its revision in uc_state.
+// applied, with its revision in uc_state. The worker calls it when it
+// takes the asset (after loading the checkpoint, before reading) and at
+// every poll, so it also hands the checkpoint's read revision to the
+// processor, which writes it into the payloads.
 func (w *assetWorker) pendingRestart() (*RestartStatus, uint64, error) {
+	w.proc.revision = w.ck.Revision
 	ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
 	defer cancel()
 	req, rev, err := w.svc.restartStatus(ctx, w.asset.Name)
@@ -243,6 +247,7 @@ func (w *assetWorker) applyRestart(req *RestartStatus, rev uint64) error {
 		w.proc.prev = map[string]float64{}
 		w.pending, w.pendDur = nil, 0
 		w.ck = checkpoint{Start: req.Start, Revision: w.ck.Revision + 1, Restart: req.ID}
+		w.proc.revision = w.ck.Revision
 		if err := w.saveCheckpoint(); err != nil {
 			return err
 		}
