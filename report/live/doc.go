@@ -113,14 +113,17 @@
 // applied to the asset (kept in the checkpoint). Estimates and alarms of
 // revision n > 0 are published with the message ids
 // "<asset>/<window>/r<n>" and "<asset>/<window>/r<n>/<kind>/<subject>"
-// and the header Uc-Revision: n, so a re-read window is always stored
-// again (never swallowed by the broker's duplicate window, one hour by
-// default), while within one revision a window published twice by a
-// takeover is still stored once. History and the alarm listing then
-// hold one entry per window and revision, oldest first; the last one
-// stored for a window (highest revision) supersedes the others, and
-// latest shows it. Deleting a checkpoint by hand resets the revision to
-// 0, whose ids the broker deduplicates within its window.
+// and the header Uc-Revision: n, and carry "revision": n in their JSON
+// (absent for revision 0, so payloads of never-restarted assets are as
+// they always were), so a re-read window is always stored again (never
+// swallowed by the broker's duplicate window, one hour by default),
+// while within one revision a window published twice by a takeover is
+// still stored once. The stream then holds one entry per window and
+// revision; the last one stored for a window (highest revision)
+// supersedes the others, and latest shows it. Deleting a checkpoint by
+// hand resets the revision to 0, whose ids the broker deduplicates
+// within its window, and breaks the revision order that queries rely on
+// (below): restart an asset instead.
 //
 // # Alarms
 //
@@ -139,7 +142,30 @@
 // at or after this sequence" lookup, finds the first message of the
 // range, an ordered consumer reads from there, and reading stops at the
 // end of the range or the limit. A query reads about log2(stream length)
-// plus the number of results messages (uc_query_messages_read_total).
+// plus the number of results messages (uc_query_messages_read_total),
+// plus one lookup of the asset's newest estimate.
+//
+// That search needs the messages in start order, which a restart breaks:
+// re-read windows are stored again after newer ones. What holds is that
+// an asset's read revision never decreases along the stream and that
+// within one revision its windows are in order, so the stream is one
+// ordered run per revision. The newest estimate's revision tells whether
+// there is more than one run (revision 0: never restarted, one run, the
+// query as above). Otherwise each run is found by binary searches on the
+// revision (its first message, and the first sequence whose next message
+// has a higher revision), the range is positioned and read within each
+// run, and the runs are merged: of each window (of each window, kind and
+// subject for alarms) the message of the highest revision, stored last,
+// is kept, and the result is sorted by start and cut at the limit. Each
+// run contributes at most limit messages plus the rest of its last
+// window, which is enough: a window cut from a newer run would sort
+// after limit windows of that run. The cost is, per revision run that
+// holds messages, about 2 log2(stream length) probes plus the messages
+// of that run in the range up to the limit; no query scans the stream.
+// With revisions=all (AllRevisions) every stored revision is returned,
+// sorted by start and then revision. An alarm raised by an older
+// revision of a window stays listed even if the re-read window no longer
+// raises it (its estimate, at the new revision, shows the new answer).
 //
 // # Unknown assets
 //
