@@ -64,10 +64,13 @@ func queryOpts(opts []QueryOption) queryOptions {
 func (s *Service) History(ctx context.Context, asset string, from, to float64, limit int, opts ...QueryOption) ([]Estimate, error) {
 	o := queryOpts(opts)
 	limit = clampLimit(limit)
-	runs, err := readRevisions(s, ctx, "history", broker.StreamEstimates, broker.EstimateSubject(asset), asset, from, to, time.Time{}, limit, func(data []byte) (Estimate, float64, bool) {
+	runs, err := readRevisions(s, ctx, "history", broker.StreamEstimates, broker.EstimateSubject(asset), asset, from, to, time.Time{}, limit, func(data []byte, rev int) (Estimate, float64, bool) {
 		var e Estimate
 		if json.Unmarshal(data, &e) != nil {
 			return e, 0, false
+		}
+		if e.Revision == 0 {
+			e.Revision = rev
 		}
 		return e, e.Start, true
 	})
@@ -106,10 +109,13 @@ func (s *Service) Alarms(ctx context.Context, asset, kind string, from, to float
 		if kind != "" {
 			subject = broker.AlarmSubject(name, kind)
 		}
-		runs, err := readRevisions(s, ctx, "alarms", broker.StreamAlarms, subject, name, from, to, since, limit, func(data []byte) (Alarm, float64, bool) {
+		runs, err := readRevisions(s, ctx, "alarms", broker.StreamAlarms, subject, name, from, to, since, limit, func(data []byte, rev int) (Alarm, float64, bool) {
 			var a Alarm
 			if json.Unmarshal(data, &a) != nil {
 				return a, 0, false
+			}
+			if a.Revision == 0 {
+				a.Revision = rev
 			}
 			return a, a.Start, true
 		})
@@ -136,8 +142,9 @@ type revisionRun struct {
 
 // readRevisions reads the messages on subject whose start is in
 // [from, to) and that were stored at or after since, revision run by
-// revision run, decoding each with dec (messages it refuses are
-// skipped). It returns one slice per run, in increasing revision; within
+// revision run, decoding each with dec, which is given the run's
+// revision for payloads stored without the field (messages it refuses
+// are skipped). It returns one slice per run, in increasing revision; within
 // a run in stream order, which is start order.
 //
 // The rule: an asset's read revision (HeaderRevision, 0 when absent)
@@ -156,7 +163,7 @@ type revisionRun struct {
 // (at most limit each, plus the rest of the last window read, so that a
 // window cut by the limit in a newer run is not shown from an older
 // one).
-func readRevisions[T any](s *Service, ctx context.Context, query, stream, subject, asset string, from, to float64, since time.Time, limit int, dec func([]byte) (T, float64, bool)) ([][]T, error) {
+func readRevisions[T any](s *Service, ctx context.Context, query, stream, subject, asset string, from, to float64, since time.Time, limit int, dec func(data []byte, rev int) (T, float64, bool)) ([][]T, error) {
 	if !(from < to) {
 		return nil, nil
 	}
@@ -179,7 +186,7 @@ func readRevisions[T any](s *Service, ctx context.Context, query, stream, subjec
 		var got []T
 		last := 0.0
 		err := q.readRun(ctx, run, from, to, since, func(data []byte) bool {
-			v, start, ok := dec(data)
+			v, start, ok := dec(data, run.rev)
 			if !ok {
 				return true
 			}

@@ -321,6 +321,18 @@ func TestHistoryRevisionRuns(t *testing.T) {
 	if used := reads("history") - before; used > 40 {
 		t.Errorf("busbar: read %v messages for %d results", used, len(gotB))
 	}
+
+	// An estimate stored with the header only (before payloads carried
+	// the field) is listed with its header's revision.
+	m := &nats.Msg{Subject: broker.EstimateSubject("fenwick-lane"), Header: nats.Header{}}
+	m.Data, _ = json.Marshal(Estimate{Asset: "fenwick-lane", Window: 1300, Start: w(1300), End: w(1301), Mode: "dc", Conductors: []ConductorEstimate{}})
+	m.Header.Set(HeaderRevision, "3")
+	if _, err := h.js.PublishMsg(ctx, m); err != nil {
+		t.Fatal(err)
+	}
+	if got, err := r.svc.History(ctx, "fenwick-lane", w(1299), w(1301), 10); err != nil || len(got) != 2 || got[0].Revision != 2 || got[1].Revision != 3 {
+		t.Errorf("header-only revision: %+v %v, want windows 1299 at revision 2 and 1300 at 3", got, err)
+	}
 	r.stop(t)
 }
 
