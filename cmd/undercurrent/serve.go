@@ -52,8 +52,8 @@ windows are published and leases handed back before exit.
 
 HTTP API (loopback by default): /healthz, /readyz, /metrics,
 /api/v1/assets, /api/v1/assets/ASSET/latest,
-/api/v1/assets/ASSET/history?from=&to=&limit=&format=csv,
-/api/v1/alarms?asset=&kind=&from=&to=&since=&limit=. from and to are window
+/api/v1/assets/ASSET/history?from=&to=&limit=&format=csv&revisions=,
+/api/v1/alarms?asset=&kind=&from=&to=&since=&limit=&revisions=. from and to are window
 starts (seconds or RFC 3339), since is when an alarm was stored; a listing
 returns the first limit results of its range (default 10000, at most
 100000). POST /api/v1/assets/ASSET/recommission needs the service token.
