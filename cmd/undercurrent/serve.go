@@ -51,12 +51,15 @@ within the lease time when a worker dies. SIGTERM or Ctrl-C drains: complete
 windows are published and leases handed back before exit.
 
 HTTP API (loopback by default): /healthz, /readyz, /metrics,
-/api/v1/assets, /api/v1/assets/ASSET/latest,
+/api/v1/assets, /api/v1/assets/ASSET, /api/v1/assets/ASSET/latest,
 /api/v1/assets/ASSET/history?from=&to=&limit=&format=csv&revisions=,
 /api/v1/alarms?asset=&kind=&from=&to=&since=&limit=&revisions=. from and to are window
 starts (seconds or RFC 3339), since is when an alarm was stored; a listing
 returns the first limit results of its range (default 10000, at most
-100000). POST /api/v1/assets/ASSET/recommission needs the service token.
+100000). POST /api/v1/assets/ASSET/recommission and
+POST /api/v1/assets/ASSET/restart?start= (re-read the asset from "new", a
+duration back such as "24h", an RFC 3339 time or "retained") need the
+service token.
 
 Examples:
   undercurrent serve --config testdata/site/harrow-fen.toml --data /var/lib/undercurrent
