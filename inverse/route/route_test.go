@@ -75,14 +75,17 @@ func near(a, b float64) bool { return math.Abs(a-b) <= chainTol*(1+math.Abs(b)) 
 
 func key(i int) string { return "T" + string(rune('0'+i/10)) + string(rune('0'+i%10)) }
 
-func count(r *Route, k Kind) int {
-	n := 0
+func count(r *Route, k Kind) int { return len(findings(r, k)) }
+
+// findings returns r's findings of kind k, in order.
+func findings(r *Route, k Kind) []Finding {
+	var out []Finding
 	for _, f := range r.Findings {
 		if f.Kind == k {
-			n++
+			out = append(out, f)
 		}
 	}
-	return n
+	return out
 }
 
 func TestStepFoundAndBracketed(t *testing.T) {
@@ -356,12 +359,7 @@ func TestShallowCover(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	var cov []Finding
-	for _, f := range r.Findings {
-		if f.Kind == KindShallowCover {
-			cov = append(cov, f)
-		}
-	}
+	cov := findings(r, KindShallowCover)
 	if len(cov) != 2 {
 		t.Fatalf("got %d cover findings, want 2: %+v", len(cov), cov)
 	}
@@ -401,13 +399,7 @@ func TestCoverGroundSigma(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		var out []Finding
-		for _, f := range r.Findings {
-			if f.Kind == KindShallowCover {
-				out = append(out, f)
-			}
-		}
-		return out
+		return findings(r, KindShallowCover)
 	}
 	c := covers(0)
 	if len(c) != 1 || c[0].Severity != SeverityWarning || c[0].Values[0].Sigma != 0.0004 {
@@ -615,12 +607,7 @@ func TestSmearedStepSizedFromPlateaus(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	var steps []Finding
-	for _, f := range r.Findings {
-		if f.Kind == KindCurrentStep {
-			steps = append(steps, f)
-		}
-	}
+	steps := findings(r, KindCurrentStep)
 	if len(steps) != 1 {
 		t.Fatalf("%d steps, want 1: %+v", len(steps), r.Findings)
 	}
