@@ -384,7 +384,8 @@ func TestShallowCover(t *testing.T) {
 }
 
 // TestCoverGroundSigma: the ground level's uncertainty widens the cover's sigma in
-// quadrature, turning a certain verdict into a possible one and flagging a station
+// quadrature (independent errors add in quadrature: common practice, e.g. the GUM,
+// JCGM 100:2008 section 5.1), turning a certain verdict into a possible one and flagging a station
 // whose fit alone says it is clear of the minimum.
 func TestCoverGroundSigma(t *testing.T) {
 	const sensor = 0.3
