@@ -41,9 +41,19 @@
 // IAGA-2002 (INTERMAGNET technical manual) element sets become ENU nT with
 // X north, Y east, Z down: XYZ gives (Y, X, -Z); HDZ gives
 // (H sin D, H cos D, -Z) with D in minutes of arc; HEZ gives (E, H, -Z) with E
-// the east component in nT. For variation data the horizontal axes of HDZ and
-// HEZ are the observatory's baseline frame (D and E are departures from the
-// baseline declination, recorded in Meta["decbas"] when the header gives it).
+// the east component in nT. Variation data in HDZ and HEZ are given in the
+// observatory's baseline frame: H points along the baseline declination D0
+// and D (or E) is the departure from it. When the header gives D0 (the
+// "# DECBAS" comment, tenths of minutes of arc east, 0 to 216000, recorded
+// in Meta["decbas"]) and the data type is variation, the horizontal
+// components are turned to geographic north and east by it:
+//
+//	HDZ: east = H sin(D0 + D), north = H cos(D0 + D)
+//	HEZ: east = H sin D0 + E cos D0, north = H cos D0 - E sin D0
+//
+// and Meta["horizontal_frame"] says so; WithIAGABaselineFrame(true) keeps the
+// baseline frame (east = E or H sin D, north = H or H cos D). Data of other
+// types (definitive, adjusted) are taken as absolute and never turned.
 // UVW is left in the instrument's axes and marked FrameSensor.
 //
 // # Missing values

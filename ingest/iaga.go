@@ -24,7 +24,8 @@ const (
 // "format", "source_of_data", "station_name", "iaga_code",
 // "geodetic_latitude", "geodetic_longitude", "elevation", "reported",
 // "sensor_orientation", "digital_sampling", "data_interval_type",
-// "data_type", plus "decbas" from a "# DECBAS" comment, "elements", the
+// "data_type", plus "decbas" from a "# DECBAS" comment (and
+// "horizontal_frame" when variation data are turned by it), "elements", the
 // element set of the data columns as read ("HDZF"), and the short keys
 // "station" (the IAGA code), "latitude" and "longitude" (degrees, as in
 // the header: longitudes may run 0 to 360).
@@ -42,6 +43,11 @@ type iagaReader struct {
 	rb       rawBatch
 	done     bool
 	pending  []byte // first data line, read while looking for the header
+	// baseline is the baseline declination (radians east) by which variation
+	// data in H D Z or H E Z are turned to geographic axes; 0 when they are
+	// not (see iagaBaseline).
+	baseline   float64
+	bsin, bcos float64 // its sine and cosine
 }
 
 func (r *iagaReader) plan() *plan                    { return r.pl }
@@ -70,6 +76,7 @@ func newIAGAReader(name string, rd io.Reader, cfg *config) (*iagaReader, error) 
 	r := &iagaReader{name: name, closer: closer, cfg: cfg, br: bufio.NewReaderSize(rd, 64<<10), last: math.NaN()}
 	meta := map[string]string{}
 	var columns []string
+	decbasLine, decbasText := 0, ""
 	for {
 		raw, err := readLine(r.br)
 		if len(raw) == 0 && err != nil {
@@ -90,6 +97,7 @@ func newIAGAReader(name string, rd io.Reader, cfg *config) (*iagaReader, error) 
 			c := strings.TrimSpace(strings.TrimPrefix(t, "#"))
 			if f := strings.Fields(c); len(f) >= 2 && strings.EqualFold(f[0], "DECBAS") {
 				meta[MetaPrefix+"decbas"] = f[1]
+				decbasLine, decbasText = r.line, f[1]
 			}
 			continue
 		default:
@@ -150,6 +158,15 @@ func newIAGAReader(name string, rd io.Reader, cfg *config) (*iagaReader, error) 
 		return nil, lineErr(name, r.line, "", set, "IAGA-2002 element set %q is not supported (want XYZ, HDZ, HEZ or UVW)", set)
 	}
 	meta[MetaFrame] = frame.String()
+	if (set == "HDZ" || set == "HEZ") && decbasLine > 0 && !cfg.keepBaseline &&
+		strings.HasPrefix(strings.ToLower(meta[MetaPrefix+"data_type"]), "variation") {
+		v, err := strconv.ParseFloat(decbasText, 64)
+		if err != nil || !(v >= 0 && v <= 216000) {
+			return nil, lineErr(name, decbasLine, "DECBAS", decbasText, "IAGA-2002 DECBAS %s is not a baseline declination in tenths of minutes of arc (0 to 216000); to read the data in the observatory's baseline frame instead, keep that frame (--iaga-baseline-frame; ingest.WithIAGABaselineFrame)", quoteText(decbasText))
+		}
+		r.baseline = v / 600 * math.Pi / 180
+		meta[MetaPrefix+"horizontal_frame"] = "geographic (turned by DECBAS)"
+	}
 	header := []string{"DATE TIME", columns[3], columns[4], columns[5], columns[6]}
 	c := *cfg
 	c.mapping, c.units, c.frameSet, c.originMode = map[int]string{}, map[int]string{}, false, originFirst
@@ -168,23 +185,36 @@ func newIAGAReader(name string, rd io.Reader, cfg *config) (*iagaReader, error) 
 	case "XYZ":
 		pl.desc[cBx], pl.desc[cBy], pl.desc[cBz] = h2+" (Y)", h1+" (X)", "-"+h3+" (Z down)"
 	case "HDZ":
-		pl.desc[cBx], pl.desc[cBy], pl.desc[cBz] = h1+" sin "+h2+" (D arc-min)", h1+" cos "+h2, "-"+h3+" (Z down)"
+		d := h2
+		if r.baseline != 0 {
+			d = "(" + h2 + " + DECBAS)"
+		}
+		pl.desc[cBx], pl.desc[cBy], pl.desc[cBz] = h1+" sin "+d+" (D arc-min)", h1+" cos "+d, "-"+h3+" (Z down)"
 	case "HEZ":
 		pl.desc[cBx], pl.desc[cBy], pl.desc[cBz] = h2+" (E)", h1+" (H)", "-"+h3+" (Z down)"
+		if r.baseline != 0 {
+			pl.desc[cBx], pl.desc[cBy] = h1+" sin DECBAS + "+h2+" cos DECBAS", h1+" cos DECBAS - "+h2+" sin DECBAS"
+		}
 	}
+	r.bsin, r.bcos = math.Sincos(r.baseline)
 	return r, nil
 }
 
-// toENU turns one row of IAGA elements into east, north, up nT; for UVW
+// toENU turns one row of IAGA elements into east, north, up nT, turning
+// variation data by the baseline declination when it applies; for UVW
 // (sensor axes) the values are kept in order.
 func (r *iagaReader) toENU(v [3]float64) (e, n, u float64) {
 	switch string(r.elements[:3]) {
 	case "XYZ":
 		return v[1], v[0], -v[2]
 	case "HDZ":
-		s, c := math.Sincos(v[1] / 60 * math.Pi / 180)
+		s, c := math.Sincos(v[1]/60*math.Pi/180 + r.baseline)
 		return v[0] * s, v[0] * c, -v[2]
 	case "HEZ":
+		if r.baseline != 0 {
+			// H along the baseline declination, E at right angles east of it.
+			return v[0]*r.bsin + v[1]*r.bcos, v[0]*r.bcos - v[1]*r.bsin, -v[2]
+		}
 		return v[1], v[0], -v[2]
 	}
 	return v[0], v[1], v[2]

@@ -72,29 +72,53 @@ func TestIAGARealFiles(t *testing.T) {
 func TestIAGAConversions(t *testing.T) {
 	dir := ingesttest.IAGADir(t)
 	// First row of bou20141101vmin.min: H 20873.75 nT, D -9.99 arc-min,
-	// Z 47477.30 nT. East = H sin D, north = H cos D, up = -Z.
-	s, err := ReadSamples(filepath.Join(dir, "bou20141101vmin.min"))
-	if err != nil {
-		t.Fatal(err)
-	}
-	d := -9.99 / 60 * math.Pi / 180
-	want := [3]float64{20873.75 * math.Sin(d), 20873.75 * math.Cos(d), -47477.30}
-	got := [3]float64{s.Bx[0], s.By[0], s.Bz[0]}
-	for i := range got {
-		if math.Abs(got[i]-want[i]) > 1e-9 {
-			t.Errorf("HDZ row 0: ENU %v, want %v", got, want)
+	// Z 47477.30 nT, variation data about DECBAS 5527 (552.7 arc-min east).
+	// In the baseline frame east = H sin D, north = H cos D, up = -Z; turned
+	// to geographic axes D becomes 552.7 + D arc-min (IAGA-2002 format
+	// description, INTERMAGNET technical manual: DECBAS is the baseline
+	// declination in tenths of minutes east).
+	for _, tc := range []struct {
+		keep bool
+		d    float64 // arc-min
+	}{{true, -9.99}, {false, 552.7 - 9.99}} {
+		s, err := ReadSamples(filepath.Join(dir, "bou20141101vmin.min"), WithIAGABaselineFrame(tc.keep))
+		if err != nil {
+			t.Fatal(err)
+		}
+		d := tc.d / 60 * math.Pi / 180
+		want := [3]float64{20873.75 * math.Sin(d), 20873.75 * math.Cos(d), -47477.30}
+		got := [3]float64{s.Bx[0], s.By[0], s.Bz[0]}
+		for i := range got {
+			if math.Abs(got[i]-want[i]) > 1e-9 {
+				t.Errorf("HDZ row 0, baseline frame kept %v: ENU %v, want %v", tc.keep, got, want)
+			}
+		}
+		if s.Meta["decbas"] != "5527" || s.Meta["geodetic_latitude"] != "40.137" || s.Meta["station"] != "BOU" || s.Meta["longitude"] != "254.764" {
+			t.Errorf("header fields: %v", s.Meta)
+		}
+		if _, turned := s.Meta["horizontal_frame"]; turned == tc.keep {
+			t.Errorf("baseline frame kept %v: horizontal_frame %q", tc.keep, s.Meta["horizontal_frame"])
 		}
 	}
-	if s.Meta["decbas"] != "5527" || s.Meta["geodetic_latitude"] != "40.137" || s.Meta["station"] != "BOU" || s.Meta["longitude"] != "254.764" {
-		t.Errorf("header fields: %v", s.Meta)
-	}
-	// First row of BOU20200101vsec.sec: H 20826.85, E -86.75, Z 46874.62.
-	s, err = ReadSamples(filepath.Join(dir, "BOU20200101vsec.sec"))
+	// First row of BOU20200101vsec.sec: H 20826.85, E -86.75, Z 46874.62,
+	// DECBAS 5527: H points 552.7 arc-min east of north, E at right angles
+	// east of it.
+	s, err := ReadSamples(filepath.Join(dir, "BOU20200101vsec.sec"), WithIAGABaselineFrame(true))
 	if err != nil {
 		t.Fatal(err)
 	}
 	if s.Bx[0] != -86.75 || s.By[0] != 20826.85 || s.Bz[0] != -46874.62 || s.F[0] != 51815.05 {
-		t.Errorf("HEZ row 0: %v %v %v F %v", s.Bx[0], s.By[0], s.Bz[0], s.F[0])
+		t.Errorf("HEZ row 0 in the baseline frame: %v %v %v F %v", s.Bx[0], s.By[0], s.Bz[0], s.F[0])
+	}
+	s, err = ReadSamples(filepath.Join(dir, "BOU20200101vsec.sec"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	d0 := 552.7 / 60 * math.Pi / 180
+	e := 20826.85*math.Sin(d0) - 86.75*math.Cos(d0)
+	n := 20826.85*math.Cos(d0) + 86.75*math.Sin(d0)
+	if math.Abs(s.Bx[0]-e) > 1e-9 || math.Abs(s.By[0]-n) > 1e-9 || s.Bz[0] != -46874.62 {
+		t.Errorf("HEZ row 0 turned: %v %v %v, want %v %v", s.Bx[0], s.By[0], s.Bz[0], e, n)
 	}
 	// LLO: three header lines, UVW kept in the instrument's axes, F NUL.
 	s, err = ReadSamples(filepath.Join(dir, "LLO20200106vsec.sec"))
@@ -197,5 +221,85 @@ func TestIAGAErrors(t *testing.T) {
 	}
 	if s.Bx[0] != -450 || s.By[0] != 17500 || s.Bz[0] != -46000 {
 		t.Errorf("XYZ: %v %v %v", s.Bx[0], s.By[0], s.Bz[0])
+	}
+}
+
+// TestIAGABaselineDeclination checks the turn of variation data by DECBAS
+// on every row of the real Boulder files: it keeps the horizontal intensity,
+// puts the declination at DECBAS + D (H D Z), and lands on a declination of
+// the right sign and size for Boulder. The last is from memory (the
+// declination at Boulder was about 8 to 9 degrees east in 2014-2020, as the
+// IGRF gives it), so the band is wide: it catches a turn the wrong way
+// (about -9 degrees), none (about 0) or a DECBAS read in the wrong unit.
+func TestIAGABaselineDeclination(t *testing.T) {
+	dir := ingesttest.IAGADir(t)
+	for _, f := range []string{"bou20141101vmin.min", "bou20141102vmin.min", "BOU20200101vsec.sec"} {
+		kept, err := ReadSamples(filepath.Join(dir, f), WithIAGABaselineFrame(true))
+		if err != nil {
+			t.Fatal(err)
+		}
+		s, err := ReadSamples(filepath.Join(dir, f))
+		if err != nil {
+			t.Fatal(err)
+		}
+		hdz := s.Meta["elements"] == "HDZF"
+		var mean float64
+		for i := range s.Time {
+			h0 := math.Hypot(kept.Bx[i], kept.By[i])
+			h := math.Hypot(s.Bx[i], s.By[i])
+			if math.Abs(h-h0) > 1e-11*h0 {
+				t.Fatalf("%s row %d: horizontal intensity %v, baseline frame %v", f, i, h, h0)
+			}
+			d := math.Atan2(s.Bx[i], s.By[i]) * 180 / math.Pi * 60 // arc-min east
+			if hdz {
+				// The file's D column, recovered from the baseline frame.
+				d0 := math.Atan2(kept.Bx[i], kept.By[i]) * 180 / math.Pi * 60
+				if math.Abs(d-(552.7+d0)) > 1e-8 {
+					t.Fatalf("%s row %d: declination %v arc-min, want DECBAS 552.7 + D %v", f, i, d, d0)
+				}
+			}
+			mean += d / 60 / float64(s.Len())
+		}
+		if mean < 7.5 || mean > 10 {
+			t.Errorf("%s: mean declination %.3f deg, want about 8 to 9 deg east (Boulder)", f, mean)
+		}
+	}
+}
+
+// TestIAGABaselineRules covers when DECBAS is applied: variation data only,
+// never definitive data, and a DECBAS that is not a declination in tenths
+// of minutes is an error naming its line (unless the baseline frame is kept).
+func TestIAGABaselineRules(t *testing.T) {
+	head := func(typ, decbas string) string {
+		return " Format                 IAGA-2002                                    |\n" +
+			" IAGA CODE              HFN                                          |\n" +
+			" Data Type              " + typ + "\n" +
+			" # DECBAS               " + decbas + "    (Baseline declination value in       |\n"
+	}
+	cols := "DATE       TIME         DOY     HFNH      HFNE      HFNZ      HFNF   |\n"
+	row := "2024-03-01 00:00:00.000 061     20000.00    100.00  46000.00  50000.00\n"
+	// DECBAS 5400: 540 arc-min = 9 degrees east.
+	s, err := ReadSamples(writeFile(t, "hfn.sec", head("variation", "5400")+cols+row))
+	if err != nil {
+		t.Fatal(err)
+	}
+	sn, cs := math.Sincos(9 * math.Pi / 180)
+	if e, n := 20000*sn+100*cs, 20000*cs-100*sn; math.Abs(s.Bx[0]-e) > 1e-9 || math.Abs(s.By[0]-n) > 1e-9 {
+		t.Errorf("variation HEZ: %v %v, want %v %v", s.Bx[0], s.By[0], e, n)
+	}
+	s, err = ReadSamples(writeFile(t, "hfn.sec", head("definitive", "5400")+cols+row))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if s.Bx[0] != 100 || s.By[0] != 20000 || s.Meta["horizontal_frame"] != "" {
+		t.Errorf("definitive HEZ turned: %v %v %q", s.Bx[0], s.By[0], s.Meta["horizontal_frame"])
+	}
+	for _, bad := range []string{"55x7", "216001", "-1"} {
+		p := writeFile(t, "hfn.sec", head("variation", bad)+cols+row)
+		_, err := ReadSamples(p)
+		wantErr(t, err, `hfn.sec:4: column DECBAS: IAGA-2002 DECBAS "`+bad+`" is not a baseline declination`)
+		if _, err := ReadSamples(p, WithIAGABaselineFrame(true)); err != nil {
+			t.Errorf("DECBAS %q with the baseline frame kept: %v", bad, err)
+		}
 	}
 }

@@ -72,6 +72,7 @@ type config struct {
 	originMode     originMode
 	allowMissing   bool
 	allowBackwards bool
+	keepBaseline   bool // IAGA-2002: leave variation data in the baseline frame (WithIAGABaselineFrame)
 	batchRows      int
 	chunkBytes     int
 	workers        int
@@ -208,6 +209,13 @@ func WithAllowMissing(ok bool) Option { return func(c *config) { c.allowMissing 
 
 // WithAllowBackwards accepts time going backwards. By default it is an error.
 func WithAllowBackwards(ok bool) Option { return func(c *config) { c.allowBackwards = ok } }
+
+// WithIAGABaselineFrame(true) leaves IAGA-2002 variation data in H D Z or
+// H E Z in the observatory's baseline frame. By default, when the header gives
+// the baseline declination (the "# DECBAS" comment, tenths of minutes of arc
+// east), the horizontal components are turned by it to geographic north and
+// east (see the package documentation).
+func WithIAGABaselineFrame(keep bool) Option { return func(c *config) { c.keepBaseline = keep } }
 
 // WithBatchSize sets the number of rows per record batch for readers that
 // choose it (IAGA-2002, Samples); CSV batches follow its parse chunks.

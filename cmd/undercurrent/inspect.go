@@ -28,6 +28,8 @@ type readFlags struct {
 	header     []string
 	frame      string
 	origin     string
+	// iagaBaseline leaves IAGA-2002 variation data in the baseline frame.
+	iagaBaseline bool
 }
 
 func (f *readFlags) add(fs *pflag.FlagSet) {
@@ -42,6 +44,7 @@ func (f *readFlags) add(fs *pflag.FlagSet) {
 	fs.StringSliceVar(&f.header, "header", nil, "column names for a CSV file without a header line")
 	fs.StringVar(&f.frame, "frame", "enu", "axes of the field and position columns: enu, ned or sensor")
 	fs.StringVar(&f.origin, "origin", "first", "origin for WGS84 positions: first, mean or LAT,LON[,HEIGHT]")
+	fs.BoolVar(&f.iagaBaseline, "iaga-baseline-frame", false, "leave IAGA-2002 variation data (H D Z, H E Z) in the observatory's baseline frame instead of turning them to geographic north by the header's DECBAS")
 }
 
 func (f *readFlags) options(fs *pflag.FlagSet) ([]ingest.Option, error) {
@@ -72,6 +75,9 @@ func (f *readFlags) options(fs *pflag.FlagSet) ([]ingest.Option, error) {
 	}
 	if len(f.header) > 0 {
 		opts = append(opts, ingest.WithHeader(f.header...))
+	}
+	if f.iagaBaseline {
+		opts = append(opts, ingest.WithIAGABaselineFrame(true))
 	}
 	if fs.Changed("frame") {
 		fr, err := ingest.ParseFrame(f.frame)

@@ -30,6 +30,7 @@ import (
 type locateOptions struct {
 	calibration  string
 	base         string
+	baseFrame    bool // --iaga-baseline-frame
 	freq         float64
 	window       float64
 	count        string
@@ -65,6 +66,7 @@ var resultFiles = []string{report.FileJSON, report.FileCSV, report.FileGeoJSON, 
 func (o *locateOptions) setFlags(fs *pflag.FlagSet) {
 	fs.StringVar(&o.calibration, "calibration", "", "apply the sensor calibration in `CAL.json` (from undercurrent calibrate)")
 	fs.StringVar(&o.base, "base", "", "subtract the diurnal variation recorded by the base station log `BASE` (any log format, IAGA-2002 too)")
+	fs.BoolVar(&o.baseFrame, "iaga-baseline-frame", false, "leave an IAGA-2002 base log's variation data in the observatory's baseline frame instead of turning them to geographic north by its DECBAS")
 	fs.Float64Var(&o.freq, "freq", 0, "demodulate the AC field at `HZ` (50, 60, 16.7...) and fit RMS currents with phase; without it the DC field is fitted")
 	fs.Float64Var(&o.window, "window", 0, "AC demodulation window, `S` seconds (default ten cycles)")
 	fs.StringVar(&o.count, "count", "auto", "number of line conductors per fit, `N` (1-4) or auto")
@@ -318,7 +320,7 @@ func readSurvey(o *locateOptions, logs []string) (*survey, error) {
 	var base *ingest.Samples
 	if o.base != "" {
 		var err error
-		if base, err = ingest.ReadSamples(o.base, ingest.WithAllowMissing(true)); err != nil {
+		if base, err = ingest.ReadSamples(o.base, ingest.WithAllowMissing(true), ingest.WithIAGABaselineFrame(o.baseFrame)); err != nil {
 			return nil, err
 		}
 		doc.Inputs = append(doc.Inputs, fileInput("base", o.base, base.Len()))
