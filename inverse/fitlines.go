@@ -6,7 +6,6 @@ import (
 	"math"
 	"sort"
 	"strings"
-	"sync"
 )
 
 // polishKeep is the multi-start budget: the starts are ranked by the projected sum of
@@ -58,9 +57,14 @@ func FitLines(p *Problem, set *Settings) (*Result, error) {
 	if sv.single && s.Background == BackgroundGradient {
 		return nil, errors.New("inverse: a background gradient cannot be resolved from a single traverse; use BackgroundUniform")
 	}
-	work := lmWorkPool.Get().(*[]float64)
-	defer lmWorkPool.Put(work)
-	f := &fitter{sv: sv, set: &s, prob: p, lmWork: work}
+	// Work buffers come from a pooled scratch and all go back to it when the fit is
+	// reported; the Result holds none of them.
+	scr := scratchPool.Get().(*scratch)
+	defer func() {
+		scr.release()
+		scratchPool.Put(scr)
+	}()
+	f := &fitter{sv: sv, set: &s, prob: p, scr: scr}
 	res, err := f.run()
 	if !sv.single || (s.Azimuth != nil && s.Dip != nil) {
 		return res, err
@@ -79,7 +83,7 @@ func FitLines(p *Problem, set *Settings) (*Result, error) {
 	if !bad {
 		return res, nil
 	}
-	g := &fitter{sv: sv, set: &s, prob: p, lmWork: work, holdSingle: true}
+	g := &fitter{sv: sv, set: &s, prob: p, scr: scr, holdSingle: true}
 	res2, err2 := g.run()
 	if err2 != nil {
 		// The free fit stands (with its notes on what it did not resolve), or its error.
@@ -156,11 +160,10 @@ type fitter struct {
 	// holdSingle holds the azimuth (perpendicular to the traverse) and dip (0) of the
 	// lines on a single traverse: the fallback when fitting them did not determine them.
 	holdSingle bool
-	lmWork     *[]float64 // the LM engine's workspace, shared by the fits (one runs at a time)
+	// scr lends the work buffers of the separables and the LM engine (its workspace
+	// scr.lm is shared by the fits: one runs at a time).
+	scr *scratch
 }
-
-// lmWorkPool recycles the LM engine's workspaces between calls of FitLines.
-var lmWorkPool = sync.Pool{New: func() any { return new([]float64) }}
 
 // holds returns which line angles new lines start with held, and at what values
 // (radians). On a single traverse a new line starts with its azimuth perpendicular to
@@ -371,7 +374,7 @@ func (f *fitter) bestOf(starts []start, quick bool) (*candidate, error) {
 		}
 		sp := newSeparable(sub.pts, sub.y, sub.nrhs, f.set.Background, f.sv.centroid, geom, dips)
 		sp.ptsLo, sp.ptsHi = sub.lo, sub.hi
-		sp.lmWork = f.lmWork
+		sp.lmWork, sp.scr = &f.scr.lm, f.scr
 		if prev != nil {
 			sp.a, sp.qty, sp.coef, sp.tau, sp.bbar = prev.a, prev.qty, prev.coef, prev.tau, prev.bbar
 			prev.a, prev.qty, prev.coef, prev.tau, prev.bbar, prev.ok = nil, nil, nil, nil, nil, false
@@ -379,7 +382,7 @@ func (f *fitter) bestOf(starts []start, quick bool) (*candidate, error) {
 		prev = sp
 		x0, lo, hi := sp.pack()
 		project(x0, lo, hi)
-		r = grow(r, sp.residLen())
+		r = f.scr.grow(r, sp.residLen())
 		if err := sp.resid(x0, r); err != nil {
 			if firstErr == nil {
 				firstErr = err
@@ -405,7 +408,7 @@ func (f *fitter) bestOf(starts []start, quick bool) (*candidate, error) {
 			// Screened on a subsample: polish on every reading.
 			st.sp = newSeparable(f.sv.pts, f.sv.y, f.sv.nrhs, f.set.Background, f.sv.centroid, st.st.lines, st.st.dips)
 			st.sp.ptsLo, st.sp.ptsHi = f.sv.lo, f.sv.hi
-			st.sp.lmWork = f.lmWork
+			st.sp.lmWork, st.sp.scr = &f.scr.lm, f.scr
 		}
 		lmp, _ := st.sp.problem()
 		f.starts++

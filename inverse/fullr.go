@@ -58,7 +58,7 @@ func (sp *separable) fullR(x []float64) (r []float64, n int, perm []int, err err
 		perm[nr*q+p] = p
 	}
 	cols := np * nr
-	dblk := grow(sp.dblk, m*cols)
+	dblk := sp.scr.grow(sp.dblk, m*cols)
 	sp.dblk = dblk
 	sp.dPhiC(dblk, np)
 	mg := m - g

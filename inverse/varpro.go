@@ -91,6 +91,7 @@ type separable struct {
 	bbar              [][3]float64 // per column of a: its projection coefficients on them
 	dblk, full        []float64    // derivative columns; unweighted basis for residuals
 	lmWork            *[]float64   // the LM engine's workspace (shared within a fit), or nil
+	scr               *scratch     // lends the work buffers above, or nil to allocate them
 	// Path-averaged readings (Problem.Travel): ptsLo and ptsHi are the outer
 	// Gauss-Legendre nodes of each reading's path, nil for point readings; tlo and
 	// thi are workspace for the basis and derivatives evaluated there.
@@ -224,8 +225,8 @@ func (sp *separable) fillPhi(phi []float64, rs, cs int, pos []int) error {
 	if sp.ptsLo != nil {
 		// Path average by three-point Gauss-Legendre quadrature (pathMean), element by
 		// element over the written entries.
-		sp.tlo = grow(sp.tlo, len(phi))
-		sp.thi = grow(sp.thi, len(phi))
+		sp.tlo = sp.scr.grow(sp.tlo, len(phi))
+		sp.thi = sp.scr.grow(sp.thi, len(phi))
 		sp.fillRaw(sp.tlo, rs, cs, pos, sp.ptsLo)
 		sp.fillRaw(sp.thi, rs, cs, pos, sp.ptsHi)
 		for c := range sp.q {
@@ -407,10 +408,10 @@ func (sp *separable) evaluate(x []float64) error {
 	if m <= q {
 		return errors.New("inverse: too few readings for the number of sources")
 	}
-	sp.a = grow(sp.a, m*max(g, 1))
-	sp.qty = grow(sp.qty, m*nr)
-	sp.coef = grow(sp.coef, q*nr)
-	sp.tau = grow(sp.tau, max(g, 1))
+	sp.a = sp.scr.grow(sp.a, m*max(g, 1))
+	sp.qty = sp.scr.grow(sp.qty, m*nr)
+	sp.coef = sp.scr.grow(sp.coef, q*nr)
+	sp.tau = sp.scr.grow(sp.tau, max(g, 1))
 	if err := sp.fillPhi(sp.a, 1, m, sp.pos); err != nil {
 		return err
 	}
@@ -523,8 +524,8 @@ func (sp *separable) dPhiC(dst []float64, np int) {
 		return
 	}
 	n := sp.m * np * sp.nrhs
-	sp.tlo = grow(sp.tlo, n)
-	sp.thi = grow(sp.thi, n)
+	sp.tlo = sp.scr.grow(sp.tlo, n)
+	sp.thi = sp.scr.grow(sp.thi, n)
 	sp.dPhiCAt(sp.tlo, np, sp.ptsLo)
 	sp.dPhiCAt(sp.thi, np, sp.ptsHi)
 	lo, hi := sp.tlo[:n], sp.thi[:n]
@@ -706,7 +707,7 @@ func (sp *separable) jacCols(x, _ []float64, jc []float64) error {
 	np := sp.nparams()
 	m, g, nr := sp.m, sp.g, sp.nrhs
 	cols := np * nr
-	sp.dblk = grow(sp.dblk, m*cols)
+	sp.dblk = sp.scr.grow(sp.dblk, m*cols)
 	sp.dPhiC(sp.dblk, np)
 	if sp.uniform() {
 		for c := range cols {
@@ -770,7 +771,7 @@ func (sp *separable) fullJacobianCols(x []float64) (a []float64, rows, cols int,
 		}
 		return a, rows, cols, nil
 	}
-	sp.full = grow(sp.full, m*np*nr+m*q)
+	sp.full = sp.scr.grow(sp.full, m*np*nr+m*q)
 	dblk := sp.full
 	sp.dPhiC(dblk, np)
 	phi := dblk[m*np*nr:]
@@ -796,7 +797,7 @@ func (sp *separable) fullResiduals(x []float64) ([]float64, error) {
 	m, q, g, nr := sp.m, sp.q, sp.g, sp.nrhs
 	w := sp.w
 	sp.w = nil
-	sp.full = grow(sp.full, m*max(g, 1))
+	sp.full = sp.scr.grow(sp.full, m*max(g, 1))
 	phi := sp.full // column-major, in the layout of sp.a (uniform background implicit)
 	err := sp.fillPhi(phi, 1, m, sp.pos)
 	sp.w = w
