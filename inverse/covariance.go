@@ -42,13 +42,24 @@ func covariance(J mat.Matrix) (cov *mat.SymDense, unresolved []bool, err error) 
 // covarianceCols is covariance for the m x n column-major Jacobian a, which it
 // overwrites.
 func covarianceCols(a []float64, m, n int) (cov *mat.SymDense, unresolved []bool, err error) {
+	c, unresolved, err := covarianceRaw(a, m, n, nil)
+	if err != nil {
+		return nil, nil, err
+	}
+	return mat.NewSymDense(n, c), unresolved, nil
+}
+
+// covarianceRaw is covarianceCols returning the covariance as n x n row-major values,
+// its workspace and the values lent by scr (nil to allocate them).
+func covarianceRaw(a []float64, m, n int, scr *scratch) (cov []float64, unresolved []bool, err error) {
 	if m < n {
 		return nil, nil, errors.New("inverse: fewer readings than parameters")
 	}
-	ws := make([]float64, n+3*n*n+n)
+	ws := scr.take(n + 3*n*n + 2*n)
 	tau, rf, v, sv := ws[:n], ws[n:n+n*n], ws[n+n*n:n+2*n*n], ws[n+2*n*n:n+2*n*n+n]
-	c := ws[n+2*n*n+n:]
-	d := make([]float64, n)
+	c := ws[n+2*n*n+n : n+3*n*n+n]
+	clear(c)
+	d := ws[n+3*n*n+n:]
 	for j := range n {
 		col := a[j*m : (j+1)*m]
 		d[j] = norm2(col)
@@ -99,5 +110,5 @@ func covarianceCols(a []float64, m, n int) (cov *mat.SymDense, unresolved []bool
 			c[j*n+i] = c[i*n+j]
 		}
 	}
-	return mat.NewSymDense(n, c), unresolved, nil
+	return c, unresolved, nil
 }

@@ -26,7 +26,7 @@ func (sp *separable) fullR(x []float64) (r []float64, n int, perm []int, err err
 	m, g, q, nr := sp.m, sp.g, sp.q, sp.nrhs
 	nb := q - g // implicit uniform background columns: 3 or 0
 	n = nr*q + np
-	r = make([]float64, n*n)
+	r = sp.scr.zeros(n * n)
 	perm = make([]int, n)
 	// Basis columns, per right-hand side: background, then the factored columns.
 	bc := sp.bgCol()
@@ -62,7 +62,7 @@ func (sp *separable) fullR(x []float64) (r []float64, n int, perm []int, err err
 	sp.dblk = dblk
 	sp.dPhiC(dblk, np)
 	mg := m - g
-	t := make([]float64, nr*mg*np+np) // the remaining rows, stacked per right-hand side
+	t := sp.scr.take(nr*mg*np + np) // the remaining rows, stacked per right-hand side
 	for p := range np {
 		for k := range nr {
 			col := dblk[(p*nr+k)*m : (p*nr+k+1)*m]
@@ -96,9 +96,9 @@ func (sp *separable) fullR(x []float64) (r []float64, n int, perm []int, err err
 
 // covarianceFromR is covariance for a Jacobian given by its n x n triangular factor r
 // (column-major, overwritten) whose column i is parameter perm[i]; the result is in the
-// parameter order.
-func covarianceFromR(r []float64, n int, perm []int) (*mat.SymDense, []bool, error) {
-	c, unres, err := covarianceCols(r, n, n)
+// parameter order. Its workspace comes from scr (nil to allocate); the result does not.
+func covarianceFromR(r []float64, n int, perm []int, scr *scratch) (*mat.SymDense, []bool, error) {
+	c, unres, err := covarianceRaw(r, n, n, scr)
 	if err != nil {
 		return nil, nil, err
 	}
@@ -107,7 +107,7 @@ func covarianceFromR(r []float64, n int, perm []int) (*mat.SymDense, []bool, err
 	for i := range n {
 		un[perm[i]] = unres[i]
 		for j := i; j < n; j++ {
-			out.SetSym(perm[i], perm[j], c.At(i, j))
+			out.SetSym(perm[i], perm[j], c[i*n+j])
 		}
 	}
 	return out, un, nil

@@ -80,7 +80,7 @@ func checkCovarianceFromR(t *testing.T, sp *separable, x []float64, J *mat.Dense
 	if err != nil {
 		t.Fatal(err)
 	}
-	got, gotUnres, err := covarianceFromR(r, n, perm)
+	got, gotUnres, err := covarianceFromR(r, n, perm, nil)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -74,7 +74,7 @@ func (f *fitter) summarise(c *candidate) (*summary, error) {
 	if err != nil {
 		return nil, err
 	}
-	cov0, unres, err := covarianceFromR(R, nR, perm)
+	cov0, unres, err := covarianceFromR(R, nR, perm, sp.scr)
 	if err != nil {
 		return nil, err
 	}

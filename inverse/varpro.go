@@ -90,6 +90,7 @@ type separable struct {
 	bn2               [3]float64   // squared norms of the weighted uniform background columns
 	bbar              [][3]float64 // per column of a: its projection coefficients on them
 	dblk, full        []float64    // derivative columns; unweighted basis for residuals
+	rbuf              []float64    // the residuals of fullResiduals
 	lmWork            *[]float64   // the LM engine's workspace (shared within a fit), or nil
 	scr               *scratch     // lends the work buffers above, or nil to allocate them
 	// Path-averaged readings (Problem.Travel): ptsLo and ptsHi are the outer
@@ -789,7 +790,8 @@ func (sp *separable) fullJacobianCols(x []float64) (a []float64, rows, cols int,
 	return a, rows, cols, nil
 }
 
-// fullResiduals returns the unweighted residuals y - Phi c, m x nrhs row-major.
+// fullResiduals returns the unweighted residuals y - Phi c, m x nrhs row-major, in a
+// buffer of the separable that the next call overwrites.
 func (sp *separable) fullResiduals(x []float64) ([]float64, error) {
 	if err := sp.evaluate(x); err != nil {
 		return nil, err
@@ -804,7 +806,9 @@ func (sp *separable) fullResiduals(x []float64) ([]float64, error) {
 	if err != nil {
 		return nil, err
 	}
-	res := append([]float64(nil), sp.y...)
+	sp.rbuf = sp.scr.grow(sp.rbuf, len(sp.y))
+	res := sp.rbuf
+	copy(res, sp.y)
 	for k := range nr {
 		for c := range q {
 			p := sp.pos[c]
