@@ -465,20 +465,19 @@ func (f *fitter) noiseFloor() float64 {
 	if n < 5 {
 		return 0
 	}
-	var d2 []float64
-	for i := 1; i+1 < n; i++ {
-		for j := range 3 {
-			for k := range nr {
-				at := func(p int) float64 { return f.sv.y[(3*p+j)*nr+k] }
-				d2 = append(d2, at(i-1)-2*at(i)+at(i+1))
-			}
-		}
+	// Consecutive readings are rows 3*nr apart in y: the second differences of all axes
+	// and parts at once are y[r-s] - 2 y[r] + y[r+s], r over the interior readings.
+	y, st := f.sv.y, 3*nr
+	d2 := f.scr.take(len(y) - 2*st)
+	for i := range d2 {
+		r := i + st
+		d2[i] = y[r-st] - 2*y[r] + y[r+st]
 	}
-	med := median(d2)
+	med := medianInPlace(d2)
 	for i, v := range d2 {
 		d2[i] = math.Abs(v - med)
 	}
-	f.floor = 1.4826 * median(d2) / math.Sqrt(6)
+	f.floor = 1.4826 * medianInPlace(d2) / math.Sqrt(6)
 	return f.floor
 }
 
@@ -542,7 +541,7 @@ func (f *fitter) reweight(c *candidate) error {
 			for i, v := range res {
 				abs[i] = math.Abs(v - med)
 			}
-			scale = 1.4826 * median(abs)
+			scale = 1.4826 * medianInPlace(abs)
 		}
 		if scale == 0 {
 			return nil

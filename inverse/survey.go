@@ -135,7 +135,7 @@ func anomaly(d []float64, n, nrhs int) [][3]float64 {
 			for i := range n {
 				col[i] = d[3*i+j]
 			}
-			med[j] = median(col)
+			med[j] = medianInPlace(col)
 		}
 		for i := range n {
 			for j := range 3 {
@@ -161,12 +161,18 @@ func anomaly(d []float64, n, nrhs int) [][3]float64 {
 	return a
 }
 
+// median returns the median of v, leaving v as it was.
 func median(v []float64) float64 {
-	n := len(v)
+	return medianInPlace(append([]float64(nil), v...))
+}
+
+// medianInPlace returns the median of s, reordering s (for private scratch, which it
+// spares a copy).
+func medianInPlace(s []float64) float64 {
+	n := len(s)
 	if n == 0 {
 		return 0
 	}
-	s := append([]float64(nil), v...)
 	hi := selectKth(s, n/2)
 	if n%2 == 1 {
 		return hi
