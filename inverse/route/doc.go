@@ -11,7 +11,10 @@
 //     (a coating defect, a leak to earth, a tee), and stations whose current
 //     departs from both neighbours (a local disturbance, not a step);
 //   - cover shallower than a minimum the caller names;
-//   - stations whose fit is poor or ambiguous;
+//   - stations whose fit is poor or ambiguous; when the sound stations
+//     either side (within three) differ in direction by 10 degrees or more
+//     in plan, the finding names the bend as the likely cause, with the turn
+//     (bendAt);
 //   - dipole-like anomalies: fields better explained by a magnetised
 //     object than by a current. The caller decides (Station.Dipole, with
 //     the object's position in Station.Object); package report refits the

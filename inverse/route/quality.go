@@ -2,6 +2,7 @@ package route
 
 import (
 	"fmt"
+	"math"
 	"strings"
 )
 
@@ -35,6 +36,10 @@ func quality(ps []Placed, set *Settings) []Finding {
 		if len(why) == 0 {
 			continue
 		}
+		bend, turn := bendAt(ps, i, maxChi)
+		if bend != "" {
+			vals = append(vals, Value{Name: "turn", Value: turn, Unit: "deg"})
+		}
 		if p.RMS > 0 {
 			vals = append(vals, Value{Name: "rms residual", Value: p.RMS, Unit: "nT"})
 		}
@@ -48,11 +53,14 @@ func quality(ps []Placed, set *Settings) []Finding {
 				From:     p.Chainage, To: p.Chainage,
 				Position: p.Point,
 				Keys:     []string{p.Key},
-				Message: fmt.Sprintf("fit at %s misses %.3g nT RMS of a %.0f nT signal (%.2g%%), more than the noise allows (chi-square per degree of freedom %.3g): the straight-line model is only approximate here (a bend, a change of depth or a nearby object); the estimates hold to about that fraction, but their sigmas may be optimistic",
-					at(p, len(ps) == 1), p.RMS, p.Signal, 100*p.RMS/p.Signal, chi),
+				Message: fmt.Sprintf("fit at %s misses %.3g nT RMS of a %.0f nT signal (%.2g%%), more than the noise allows (chi-square per degree of freedom %.3g): the straight-line model is only approximate here (%s); the estimates hold to about that fraction, but their sigmas may be optimistic",
+					at(p, len(ps) == 1), p.RMS, p.Signal, 100*p.RMS/p.Signal, chi, orDefault(bend, "a bend, a change of depth or a nearby object")),
 				Values: vals,
 			})
 			continue
+		}
+		if bend != "" && (chi > 0 || !p.OK) {
+			why = append(why, bend+", which one straight line cannot follow")
 		}
 		use := "used with care"
 		if !p.usable() {
@@ -100,4 +108,70 @@ func dipoleFinding(p *Placed, single bool) Finding {
 		{Name: "BIC lower by", Value: o.Evidence},
 	}
 	return f
+}
+
+// bendTurn is the smallest change of direction between the stations either
+// side of a poorly fitted one that is reported as a bend at it, degrees.
+// An infinite straight line fitted to a traverse over a bend misses the
+// field of the turned arm; a few degrees are within the scatter of fitted
+// azimuths, tens are a bend a crew can look for.
+const bendTurn = 10.0
+
+// bendNeighbours is how many stations either side of a poorly fitted one
+// are searched for a sound station to compare directions with.
+const bendNeighbours = 3
+
+// bendAt describes a bend of the conductor at station i of ps: the turn, in
+// plan, between the directions of the nearest sound stations before and
+// after it, when it is at least bendTurn. A station is sound here when it
+// is usable, has no Problem, is not steep, and its reduced chi-square is
+// within maxChi (when positive) or half station i's, whichever is larger:
+// near a bend the neighbours' fits suffer too, but less. It returns ""
+// when there is none, else a phrase such as "the conductor turns 31
+// degrees to the left between T18 and T20" and the signed turn (degrees,
+// positive to the left looking along the route).
+func bendAt(ps []Placed, i int, maxChi float64) (string, float64) {
+	red := func(p *Placed) float64 {
+		if p.DOF > 0 && p.Chi2 > 0 {
+			return p.Chi2 / float64(p.DOF)
+		}
+		return 0
+	}
+	lim := math.Max(maxChi, red(&ps[i])/2)
+	sound := func(p *Placed) bool {
+		return p.usable() && p.Problem == "" && math.Hypot(p.Dir[0], p.Dir[1]) > 0.5 && (maxChi <= 0 || red(p) <= lim)
+	}
+	a, b := -1, -1
+	for j := i - 1; j >= 0 && j >= i-bendNeighbours; j-- {
+		if sound(&ps[j]) {
+			a = j
+			break
+		}
+	}
+	for j := i + 1; j < len(ps) && j <= i+bendNeighbours; j++ {
+		if sound(&ps[j]) {
+			b = j
+			break
+		}
+	}
+	if a < 0 || b < 0 {
+		return "", 0
+	}
+	u, v := ps[a].Dir, ps[b].Dir
+	turn := math.Atan2(u[0]*v[1]-u[1]*v[0], u[0]*v[0]+u[1]*v[1]) * 180 / math.Pi
+	if math.Abs(turn) < bendTurn {
+		return "", 0
+	}
+	side := "left"
+	if turn < 0 {
+		side = "right"
+	}
+	return fmt.Sprintf("the conductor turns %.0f degrees to the %s between %s and %s", math.Abs(turn), side, label(&ps[a]), label(&ps[b])), turn
+}
+
+func orDefault(s, def string) string {
+	if s == "" {
+		return def
+	}
+	return s
 }

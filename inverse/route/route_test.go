@@ -773,3 +773,85 @@ func TestStepSigmaCoverage(t *testing.T) {
 		})
 	}
 }
+
+// A poor fit at a traverse over a bend is explained by the turn between
+// the sound stations either side, measured in plan from their fitted
+// directions (positive to the left, looking along the route); a turn of a
+// few degrees is not called a bend, and a neighbour fitted worse than both
+// the limit and half the poor station's reduced chi-square is passed over.
+func TestBendNamedAtPoorFit(t *testing.T) {
+	tests := []struct {
+		name       string
+		turn       float64 // change of azimuth at T12, degrees clockwise (to the right)
+		minor      bool    // misfit small against the signal: an information finding
+		badT11     bool    // T11 fitted worse than half T12's reduced chi-square
+		contains   string
+		wantValue  float64 // the "turn" value, degrees to the left; 0 for none
+		wantNoBend bool
+	}{
+		{"right turn", 35, false, false, "the conductor turns 35 degrees to the right between T11 and T13, which one straight line cannot follow", -35, false},
+		{"left turn, minor misfit", -20, true, false, "only approximate here (the conductor turns 20 degrees to the left between T11 and T13)", 20, false},
+		{"neighbour fitted badly", 35, false, true, "the conductor turns 35 degrees to the right between T10 and T13", -35, false},
+		{"slight turn", 5, false, false, "", 0, true},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			st := make([]Station, cpCount)
+			var pos [3]float64
+			for i := range st {
+				az := cpAzimuth
+				switch {
+				case i > 12:
+					az += tc.turn
+				case i == 12:
+					az += tc.turn / 2
+				}
+				a := az * math.Pi / 180
+				u := [3]float64{math.Sin(a), math.Cos(a), 0}
+				if i > 0 {
+					pos = [3]float64{pos[0] + cpSpacing*u[0], pos[1] + cpSpacing*u[1], -cpDepth}
+				}
+				st[i] = Station{Key: key(i), Point: pos, Dir: u, Current: cpI0, CurrentSigma: cpSigma,
+					Depth: cpDepth, DepthSigma: 0.01, OK: true, Chi2: 50, DOF: 50}
+			}
+			st[12].Chi2, st[12].RMS, st[12].Signal = 5000, 50, 1000
+			if tc.minor {
+				st[12].RMS = 5
+			}
+			if tc.badT11 {
+				st[11].Chi2 = 3000 // reduced 60, over half of T12's 100
+			}
+			r, err := Build(st, &Settings{MaxReducedChi2: 4})
+			if err != nil {
+				t.Fatal(err)
+			}
+			var f *Finding
+			for k := range r.Findings {
+				if r.Findings[k].Kind == KindPoorFit && r.Findings[k].Keys[0] == key(12) {
+					f = &r.Findings[k]
+				}
+			}
+			if f == nil {
+				t.Fatalf("no poor-fit finding at T12: %+v", r.Findings)
+			}
+			if tc.wantNoBend {
+				if strings.Contains(f.Message, "turns") {
+					t.Errorf("a %g degree turn was called a bend: %s", tc.turn, f.Message)
+				}
+				return
+			}
+			if !strings.Contains(f.Message, tc.contains) {
+				t.Errorf("message %q lacks %q", f.Message, tc.contains)
+			}
+			var got float64
+			for _, v := range f.Values {
+				if v.Name == "turn" {
+					got = v.Value
+				}
+			}
+			if math.Abs(got-tc.wantValue) > 1e-9 {
+				t.Errorf("turn value %g, want %g", got, tc.wantValue)
+			}
+		})
+	}
+}
