@@ -163,9 +163,31 @@
 // holds messages, about 2 log2(stream length) probes plus the messages
 // of that run in the range up to the limit; no query scans the stream.
 // With revisions=all (AllRevisions) every stored revision is returned,
-// sorted by start and then revision. An alarm raised by an older
-// revision of a window stays listed even if the re-read window no longer
-// raises it (its estimate, at the new revision, shows the new answer).
+// sorted by start and then revision.
+//
+// Alarms of re-read windows: the alarm listing shows of each window the
+// alarms of the highest read revision that processed it, which may be
+// none. A revision has processed a window once it has stored the
+// window's estimate, so an alarm that the re-read window no longer
+// raises stops being listed, a different alarm raised instead replaces
+// it, and a window that the re-read has not reached yet keeps its older
+// alarms (for the moment between a re-read window's estimate and its
+// alarms being stored, the window lists none). This holds with a kind
+// filter too: an over-current alarm of revision 0 is not listed once
+// revision 1 has processed the window, whatever revision 1 raised. To
+// know a window's highest revision when its alarms are of a lower
+// revision than the asset's newest estimate, the estimate runs are found
+// as above and each run of a higher revision is asked, newest first,
+// whether it holds the window: a galloping search from where the run's
+// previous answer was found (windows are decided in start order), one
+// lookup when the run's next estimate is the window's. Because alarms
+// are dropped, a run read up to limit may give fewer than limit answers;
+// the runs are then read on, from where they stopped, until limit
+// alarms are kept or the range ends. Such a query costs, beyond the
+// above, about 2 log2(stream length) probes per estimate run of a
+// revision above 0, a few probes per window whose alarms are of an
+// older revision, and the dropped alarms it reads; it never scans a
+// stream (see alarmrevisions.go).
 //
 // # Unknown assets
 //

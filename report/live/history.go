@@ -86,11 +86,14 @@ func (s *Service) History(ctx context.Context, asset string, from, to float64, l
 // They are sorted by window start, oldest first; at most limit are
 // returned (the oldest of the range). Each asset's alarms are positioned
 // and read as in History (the kind filter is applied by the broker), so
-// the cost grows with the answer, not with the stored history. Of an
-// alarm stored in several read revisions (same asset, window, kind and
-// subject) only the highest revision is returned, unless the
-// AllRevisions option is given. An alarm raised by a lower revision is
-// still listed when the re-read window no longer raises it.
+// the cost grows with the answer, not with the stored history. Of a
+// window processed in several read revisions (the asset was restarted)
+// only the alarms of the highest revision that processed it are
+// returned, none when it raised none: an alarm that a re-read window no
+// longer raises is dropped once the re-read has stored the window's
+// estimate, and kept until then. The AllRevisions option returns every
+// stored alarm instead. See latestAlarms for how the window's highest
+// revision is found without scanning the estimates.
 func (s *Service) Alarms(ctx context.Context, asset, kind string, from, to float64, since time.Time, limit int, opts ...QueryOption) ([]Alarm, error) {
 	o := queryOpts(opts)
 	limit = clampLimit(limit)
@@ -109,19 +112,16 @@ func (s *Service) Alarms(ctx context.Context, asset, kind string, from, to float
 		if kind != "" {
 			subject = broker.AlarmSubject(name, kind)
 		}
-		runs, err := readRevisions(s, ctx, "alarms", broker.StreamAlarms, subject, name, from, to, since, limit, func(data []byte, rev int) (Alarm, float64, bool) {
-			var a Alarm
-			if json.Unmarshal(data, &a) != nil {
-				return a, 0, false
-			}
-			if a.Revision == 0 {
-				a.Revision = rev
-			}
-			return a, a.Start, true
-		})
-		out = append(out, pickRevisions(runs, o.all, limit, func(a Alarm) float64 { return a.Start }, func(a Alarm) string {
-			return strconv.FormatInt(a.Window, 10) + "/" + a.Kind + "/" + a.Subject
-		})...)
+		var got []Alarm
+		var err error
+		if o.all {
+			var runs [][]Alarm
+			runs, err = readRevisions(s, ctx, "alarms", broker.StreamAlarms, subject, name, from, to, since, limit, decodeAlarm)
+			got = pickRevisions(runs, true, limit, alarmStart, alarmKey)
+		} else {
+			got, err = s.latestAlarms(ctx, name, subject, from, to, since, limit)
+		}
+		out = append(out, got...)
 		if err != nil {
 			return out, err
 		}
@@ -138,6 +138,8 @@ func (s *Service) Alarms(ctx context.Context, asset, kind string, from, to float
 type revisionRun struct {
 	rev    int
 	lo, hi uint64
+	// first is the start of the run's first message (revisionRuns).
+	first float64
 }
 
 // readRevisions reads the messages on subject whose start is in
@@ -164,28 +166,43 @@ type revisionRun struct {
 // window cut by the limit in a newer run is not shown from an older
 // one).
 func readRevisions[T any](s *Service, ctx context.Context, query, stream, subject, asset string, from, to float64, since time.Time, limit int, dec func(data []byte, rev int) (T, float64, bool)) ([][]T, error) {
-	if !(from < to) {
-		return nil, nil
-	}
-	q, err := s.openQuery(ctx, query, stream, subject)
+	q, top, err := s.openRevisions(ctx, query, stream, subject, asset, from, to)
 	if err != nil || q == nil {
 		return nil, err
 	}
-	top, err := q.topRevision(ctx, asset)
-	if err != nil {
-		return nil, err
-	}
-	runs := []revisionRun{{0, q.info.State.FirstSeq, q.info.State.LastSeq + 1}}
+	runs := []revisionRun{{rev: 0, lo: q.info.State.FirstSeq, hi: q.info.State.LastSeq + 1}}
 	if top > 0 {
 		if runs, err = q.revisionRuns(ctx); err != nil {
 			return nil, err
 		}
 	}
+	return readRuns(ctx, q, runs, from, to, since, limit, dec)
+}
+
+// openRevisions opens a History or Alarms read of subject and looks up
+// the asset's highest read revision (see readRevisions); q is nil when
+// there is nothing to read.
+func (s *Service) openRevisions(ctx context.Context, query, stream, subject, asset string, from, to float64) (q *rangeQuery, top int, err error) {
+	if !(from < to) {
+		return nil, 0, nil
+	}
+	if q, err = s.openQuery(ctx, query, stream, subject); err != nil || q == nil {
+		return nil, 0, err
+	}
+	if top, err = q.topRevision(ctx, asset); err != nil {
+		return nil, 0, err
+	}
+	return q, top, nil
+}
+
+// readRuns reads each run of readRevisions: at most limit messages of a
+// run, plus the rest of its last window when there are several runs.
+func readRuns[T any](ctx context.Context, q *rangeQuery, runs []revisionRun, from, to float64, since time.Time, limit int, dec func(data []byte, rev int) (T, float64, bool)) ([][]T, error) {
 	var out [][]T
 	for _, run := range runs {
 		var got []T
 		last := 0.0
-		err := q.readRun(ctx, run, from, to, since, func(data []byte) bool {
+		err := q.readRun(ctx, run, from, to, since, func(data []byte, _ uint64) bool {
 			v, start, ok := dec(data, run.rev)
 			if !ok {
 				return true
@@ -211,7 +228,10 @@ func readRevisions[T any](s *Service, ctx context.Context, query, stream, subjec
 // start (stable: among equal starts lower revisions, then older messages,
 // first), keeping with all every message and otherwise only the last one
 // of each key (the highest revision, and within it the newest), and
-// returns its first limit.
+// returns its first limit. Estimates are keyed by window, so this is
+// History's rule; the alarm listing of a restarted asset uses
+// latestAlarms, which also drops alarms whose window a higher revision
+// processed without raising them.
 func pickRevisions[T any](runs [][]T, all bool, limit int, start func(T) float64, key func(T) string) []T {
 	out := []T{}
 	if all {
@@ -390,19 +410,21 @@ func (q *rangeQuery) revisionRuns(ctx context.Context) ([]revisionRun, error) {
 		if err != nil {
 			return nil, err
 		}
-		runs = append(runs, revisionRun{rev, m.Sequence, hi})
+		first, _ := startOf(m.Data)
+		runs = append(runs, revisionRun{rev: rev, lo: m.Sequence, hi: hi, first: first})
 		lo = hi
 	}
 	return runs, nil
 }
 
 // readRun calls f, in stream order, with each message of the run whose
-// start is in [from, to) and that was stored at or after since, until f
-// returns false, a message starting at or after to is met, or the run
-// ends. Messages of the run must be stored in nondecreasing start order.
-// Every message fetched from the broker (positioning probes included) is
-// counted in uc_query_messages_read_total{query}.
-func (q *rangeQuery) readRun(ctx context.Context, run revisionRun, from, to float64, since time.Time, f func([]byte) bool) error {
+// start is in [from, to) and that was stored at or after since, and its
+// stream sequence, until f returns false, a message starting at or after
+// to is met, or the run ends. Messages of the run must be stored in
+// nondecreasing start order. Every message fetched from the broker
+// (positioning probes included) is counted in
+// uc_query_messages_read_total{query}.
+func (q *rangeQuery) readRun(ctx context.Context, run revisionRun, from, to float64, since time.Time, f func([]byte, uint64) bool) error {
 	inRange := func(m *jetstream.RawStreamMsg) bool {
 		start, ok := startOf(m.Data)
 		return ok && start >= from && !m.Time.Before(since)
@@ -417,6 +439,22 @@ func (q *rangeQuery) readRun(ctx context.Context, run revisionRun, from, to floa
 	if err != nil || first == nil || !inRange(first) {
 		return err
 	}
+	return q.readFrom(ctx, first, run.hi, to, f)
+}
+
+// resumeRun is readRun for a run whose messages from sequence run.lo on
+// are all known to be in range from its start (a read that stopped
+// there): it positions with one lookup instead of a search.
+func (q *rangeQuery) resumeRun(ctx context.Context, run revisionRun, to float64, f func([]byte, uint64) bool) error {
+	first, err := q.next(ctx, run.lo, run.hi)
+	if err != nil || first == nil {
+		return err
+	}
+	return q.readFrom(ctx, first, run.hi, to, f)
+}
+
+// readFrom reads for readRun from the message first, before sequence end.
+func (q *rangeQuery) readFrom(ctx context.Context, first *jetstream.RawStreamMsg, end uint64, to float64, f func([]byte, uint64) bool) error {
 	if start, _ := startOf(first.Data); start >= to {
 		return nil
 	}
@@ -435,7 +473,7 @@ func (q *rangeQuery) readRun(ctx context.Context, run revisionRun, from, to floa
 	batch, pending := 1, uint64(1)
 	for {
 		n := int(min(uint64(batch), pending))
-		done, got, err := q.s.fetchRange(ctx, cons, n, to, run.hi, q.reads, &pending, f)
+		done, got, err := q.s.fetchRange(ctx, cons, n, to, end, q.reads, &pending, f)
 		if err != nil {
 			return q.fail(err)
 		}
@@ -451,7 +489,7 @@ func (q *rangeQuery) readRun(ctx context.Context, run revisionRun, from, to floa
 
 // fetchRange fetches n messages for readRun and hands them to f, up to
 // sequence end (exclusive); done reports that the read is over.
-func (s *Service) fetchRange(ctx context.Context, cons jetstream.Consumer, n int, to float64, end uint64, reads interface{ Inc() }, pending *uint64, f func([]byte) bool) (done bool, got int, err error) {
+func (s *Service) fetchRange(ctx context.Context, cons jetstream.Consumer, n int, to float64, end uint64, reads interface{ Inc() }, pending *uint64, f func([]byte, uint64) bool) (done bool, got int, err error) {
 	fctx, cancel := context.WithTimeout(ctx, 10*time.Second)
 	defer cancel()
 	mb, err := cons.Fetch(n, jetstream.FetchContext(fctx))
@@ -472,7 +510,7 @@ func (s *Service) fetchRange(ctx context.Context, cons jetstream.Consumer, n int
 		if start, ok := startOf(m.Data()); ok && start >= to {
 			return true, got, nil
 		}
-		if !f(m.Data()) || md.Sequence.Stream+1 >= end || *pending == 0 {
+		if !f(m.Data(), md.Sequence.Stream) || md.Sequence.Stream+1 >= end || *pending == 0 {
 			return true, got, nil
 		}
 	}

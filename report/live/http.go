@@ -43,9 +43,11 @@ import (
 // positioned in the stored streams by the broker and read only about as
 // many messages as they return (see History). A window read again after
 // a restart is listed once, at its highest read revision ("revision" in
-// the JSON, 0 and omitted before the first restart); revisions=all lists
-// every revision, sorted by start and then revision (revisions=latest is
-// the default). The CSV history has one row per window and conductor
+// the JSON, 0 and omitted before the first restart), and the alarms
+// listed for it are those that revision raised, none when it raised
+// none (until the re-read reaches the window, its older alarms stay);
+// revisions=all lists every revision, sorted by start and then revision
+// (revisions=latest is the default). The CSV history has one row per window and conductor
 // and ends with a revision column, after the columns it always had, so
 // readers that take columns by position or by name keep working.
 // Read endpoints are open when the API listens on
