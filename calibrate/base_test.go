@@ -1,7 +1,10 @@
 package calibrate
 
 import (
+	"fmt"
 	"math"
+	"os"
+	"path/filepath"
 	"strings"
 	"testing"
 	"undercurrent/ingest/ingesttest"
@@ -144,5 +147,38 @@ func TestBaseCorrectColumnsSynthetic(t *testing.T) {
 	}
 	if _, err := BaseCorrectColumns("rover", rt, rb, "base.csv", []float64{0, 10, 10, 30, 40}, bb, nil); err == nil || !strings.Contains(err.Error(), "base.csv: row 2") {
 		t.Errorf("err = %v, want one naming base.csv row 2", err)
+	}
+}
+
+// A base record of observatory variation data whose header gives no
+// baseline declination stays in the baseline frame (ingest), and the
+// correction warns that its east and north are not geographic; the Boulder
+// files, which give DECBAS, draw no such warning (TestBaseCorrectBoulderSelf).
+func TestBaseCorrectWarnsBaselineFrame(t *testing.T) {
+	text := " Format                 IAGA-2002                                    |\n" +
+		" IAGA CODE              HFN                                          |\n" +
+		" Data Type              variation                                    |\n" +
+		"DATE       TIME         DOY     HFNH      HFNE      HFNZ      HFNF   |\n"
+	for i := range 5 {
+		text += fmt.Sprintf("2024-03-01 00:0%d:00.000 061     %.2f    100.00  46000.00  50000.00\n", i, 20000+float64(i))
+	}
+	path := filepath.Join(t.TempDir(), "hfn20240301vmin.min")
+	if err := os.WriteFile(path, []byte(text), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	base, err := ingest.ReadSamples(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	rover, err := ingest.ReadSamples(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	rep, err := BaseCorrect(rover, base, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(rep.Warnings) != 1 || !strings.Contains(rep.Warnings[0], "gives no baseline declination (DECBAS)") {
+		t.Errorf("warnings %q, want one about the baseline frame", rep.Warnings)
 	}
 }

@@ -77,8 +77,12 @@ func BaseCorrect(rover, base *ingest.Samples, set *BaseSettings) (*BaseReport, e
 	if base.Frame != ingest.FrameENU {
 		return nil, fmt.Errorf("calibrate: base correction: base record %s is in the sensor frame, not east-north-up", source(base))
 	}
-	return BaseCorrectColumns(source(rover), rover.Time, [3][]float64{rover.Bx, rover.By, rover.Bz},
+	rep, err := BaseCorrectColumns(source(rover), rover.Time, [3][]float64{rover.Bx, rover.By, rover.Bz},
 		source(base), base.Time, [3][]float64{base.Bx, base.By, base.Bz}, set)
+	if err == nil && base.Meta["horizontal_frame"] == ingest.IAGABaselineNoDECBAS {
+		rep.Warnings = append(rep.Warnings, fmt.Sprintf("base record %s holds observatory variation data in the baseline frame and its header gives no baseline declination (DECBAS): its east and north departures are turned from geographic axes by that declination", source(base)))
+	}
+	return rep, err
 }
 
 // Tilt rotates sensor-frame readings of s to east-north-up in place, from

@@ -51,9 +51,12 @@
 //	HDZ: east = H sin(D0 + D), north = H cos(D0 + D)
 //	HEZ: east = H sin D0 + E cos D0, north = H cos D0 - E sin D0
 //
-// and Meta["horizontal_frame"] says so; WithIAGABaselineFrame(true) keeps the
-// baseline frame (east = E or H sin D, north = H or H cos D). Data of other
-// types (definitive, adjusted) are taken as absolute and never turned.
+// and Meta["horizontal_frame"] says so (IAGAGeographic);
+// WithIAGABaselineFrame(true) keeps the baseline frame (east = E or H sin D,
+// north = H or H cos D; IAGABaselineKept), as does a variation file whose
+// header gives no DECBAS (IAGABaselineNoDECBAS, which base-station
+// correction warns about). Data of other types (definitive, adjusted) are
+// taken as absolute and never turned.
 // UVW is left in the instrument's axes and marked FrameSensor.
 //
 // # Missing values

@@ -12,6 +12,16 @@ import (
 	"github.com/apache/arrow-go/v18/arrow"
 )
 
+// Values of Meta["horizontal_frame"] for IAGA-2002 variation data in H D Z
+// or H E Z: turned to geographic north by the header's DECBAS, left in the
+// observatory's baseline frame on request (WithIAGABaselineFrame), or left
+// there because the header gives no DECBAS.
+const (
+	IAGAGeographic       = "geographic (turned by DECBAS)"
+	IAGABaselineKept     = "observatory baseline (kept)"
+	IAGABaselineNoDECBAS = "observatory baseline (no DECBAS in the header)"
+)
+
 // IAGA-2002 markers for values that are absent (INTERMAGNET technical
 // manual): 99999.00 missing, 88888.00 not recorded. Both read as NaN.
 const (
@@ -158,14 +168,20 @@ func newIAGAReader(name string, rd io.Reader, cfg *config) (*iagaReader, error) 
 		return nil, lineErr(name, r.line, "", set, "IAGA-2002 element set %q is not supported (want XYZ, HDZ, HEZ or UVW)", set)
 	}
 	meta[MetaFrame] = frame.String()
-	if (set == "HDZ" || set == "HEZ") && decbasLine > 0 && !cfg.keepBaseline &&
-		strings.HasPrefix(strings.ToLower(meta[MetaPrefix+"data_type"]), "variation") {
+	variation := (set == "HDZ" || set == "HEZ") && strings.HasPrefix(strings.ToLower(meta[MetaPrefix+"data_type"]), "variation")
+	switch {
+	case variation && cfg.keepBaseline:
+		meta[MetaPrefix+"horizontal_frame"] = IAGABaselineKept
+	case variation && decbasLine == 0:
+		meta[MetaPrefix+"horizontal_frame"] = IAGABaselineNoDECBAS
+	}
+	if variation && decbasLine > 0 && !cfg.keepBaseline {
 		v, err := strconv.ParseFloat(decbasText, 64)
 		if err != nil || !(v >= 0 && v <= 216000) {
 			return nil, lineErr(name, decbasLine, "DECBAS", decbasText, "IAGA-2002 DECBAS %s is not a baseline declination in tenths of minutes of arc (0 to 216000); to read the data in the observatory's baseline frame instead, keep that frame (--iaga-baseline-frame; ingest.WithIAGABaselineFrame)", quoteText(decbasText))
 		}
 		r.baseline = v / 600 * math.Pi / 180
-		meta[MetaPrefix+"horizontal_frame"] = "geographic (turned by DECBAS)"
+		meta[MetaPrefix+"horizontal_frame"] = IAGAGeographic
 	}
 	header := []string{"DATE TIME", columns[3], columns[4], columns[5], columns[6]}
 	c := *cfg

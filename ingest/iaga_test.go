@@ -96,8 +96,8 @@ func TestIAGAConversions(t *testing.T) {
 		if s.Meta["decbas"] != "5527" || s.Meta["geodetic_latitude"] != "40.137" || s.Meta["station"] != "BOU" || s.Meta["longitude"] != "254.764" {
 			t.Errorf("header fields: %v", s.Meta)
 		}
-		if _, turned := s.Meta["horizontal_frame"]; turned == tc.keep {
-			t.Errorf("baseline frame kept %v: horizontal_frame %q", tc.keep, s.Meta["horizontal_frame"])
+		if want := map[bool]string{true: IAGABaselineKept, false: IAGAGeographic}[tc.keep]; s.Meta["horizontal_frame"] != want {
+			t.Errorf("baseline frame kept %v: horizontal_frame %q, want %q", tc.keep, s.Meta["horizontal_frame"], want)
 		}
 	}
 	// First row of BOU20200101vsec.sec: H 20826.85, E -86.75, Z 46874.62,
@@ -293,6 +293,15 @@ func TestIAGABaselineRules(t *testing.T) {
 	}
 	if s.Bx[0] != 100 || s.By[0] != 20000 || s.Meta["horizontal_frame"] != "" {
 		t.Errorf("definitive HEZ turned: %v %v %q", s.Bx[0], s.By[0], s.Meta["horizontal_frame"])
+	}
+	// Variation data without DECBAS stay in the baseline frame, marked so.
+	noDecbas := strings.Replace(head("variation", "5400"), " # DECBAS               5400    (Baseline declination value in       |\n", "", 1)
+	s, err = ReadSamples(writeFile(t, "hfn.sec", noDecbas+cols+row))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if s.Bx[0] != 100 || s.By[0] != 20000 || s.Meta["horizontal_frame"] != IAGABaselineNoDECBAS {
+		t.Errorf("variation HEZ without DECBAS: %v %v %q", s.Bx[0], s.By[0], s.Meta["horizontal_frame"])
 	}
 	for _, bad := range []string{"55x7", "216001", "-1"} {
 		p := writeFile(t, "hfn.sec", head("variation", bad)+cols+row)
