@@ -74,9 +74,7 @@ func houseGen(x []float64) float64 {
 	beta := -math.Copysign(math.Hypot(alpha, xn), alpha)
 	tau := (beta - alpha) / beta
 	s := 1 / (alpha - beta) // |alpha - beta| = |alpha| + |beta|: no cancellation
-	for i := 1; i < len(x); i++ {
-		x[i] *= s
-	}
+	floats.Scale(s, x[1:])
 	x[0] = beta
 	return tau
 }

@@ -4,6 +4,7 @@ import (
 	"errors"
 	"math"
 
+	"gonum.org/v1/gonum/floats"
 	"gonum.org/v1/gonum/mat"
 )
 
@@ -319,6 +320,14 @@ func (sp *separable) weightCheck(phi []float64, rs, cs int, col func(int) int) e
 		if rs == 1 {
 			// Contiguous column.
 			v := phi[pc*cs : pc*cs+sp.m]
+			if sp.w == nil {
+				// The sum of squares is finite only if every entry is: then there is
+				// nothing to find (otherwise the loop below decides, as an overflow of
+				// the sum alone is no error).
+				if s := floats.Dot(v, v); s-s == 0 {
+					continue
+				}
+			}
 			var bad float64
 			if sp.w != nil {
 				w := sp.w[:len(v)]
@@ -720,10 +729,8 @@ func (sp *separable) jacCols(x, _ []float64, jc []float64) error {
 	rows := mg * nr
 	for k := range nr {
 		for p := range np {
-			dst := jc[p*rows+k*mg : p*rows+(k+1)*mg]
-			for i, v := range sp.dblk[(p*nr+k)*m+g : (p*nr+k+1)*m] {
-				dst[i] = -v
-			}
+			// -1*v is -v exactly.
+			floats.ScaleTo(jc[p*rows+k*mg:p*rows+(k+1)*mg], -1, sp.dblk[(p*nr+k)*m+g:(p*nr+k+1)*m])
 		}
 	}
 	return nil
