@@ -213,3 +213,33 @@ func TestAlarmsFollowReread(t *testing.T) {
 	}
 	r.stop(t)
 }
+
+// BenchmarkAlarmsRevisions times the alarm listing for windows 1090..1109
+// of the TestHistoryRevisionRuns layout (three read revisions, about
+// 4,400 stored estimates and 750 alarms; 13 alarms of the range, 4 of
+// them listed): the latest revision of each window, which asks the
+// estimate runs, against every revision.
+func BenchmarkAlarmsRevisions(b *testing.B) {
+	h := newHarness(b)
+	two := testSiteText + strings.Replace(testSiteText[strings.Index(testSiteText, "[[asset]]"):], "fenwick-lane", "harrow-fen-busbar", 1)
+	r := h.start(testSite(b, two), "w1")
+	h.storeRevision(0, 1300, 0, true)
+	h.storeRevision(500, 1200, 1, false)
+	h.storeRevision(1100, 1300, 2, false)
+	ctx := context.Background()
+	for _, c := range []struct {
+		name string
+		opts []QueryOption
+		n    int
+	}{{"latest", nil, 4}, {"all", []QueryOption{AllRevisions()}, 13}} {
+		b.Run(c.name, func(b *testing.B) {
+			for b.Loop() {
+				got, err := r.svc.Alarms(ctx, "fenwick-lane", AlarmOverCurrent, t0+0.5*1090, t0+0.5*1110, time.Time{}, 100, c.opts...)
+				if err != nil || len(got) != c.n {
+					b.Fatal(len(got), err)
+				}
+			}
+		})
+	}
+	r.stop(b)
+}

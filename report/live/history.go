@@ -468,6 +468,17 @@ func (q *rangeQuery) readFrom(ctx context.Context, first *jetstream.RawStreamMsg
 	if err != nil {
 		return q.fail(err)
 	}
+	// Each Fetch of an ordered consumer replaces its server consumer (the
+	// client deletes the old one); delete the last one now rather than
+	// leave it to the inactivity threshold, or frequent queries would
+	// fill the stream's consumer limit (1,000 by default).
+	defer func() {
+		if info := cons.CachedInfo(); info != nil {
+			dctx, cancel := context.WithTimeout(context.Background(), 2*time.Second)
+			q.s.stores.JS.DeleteConsumer(dctx, q.stream, info.Name)
+			cancel()
+		}
+	}()
 	// Fetch in growing batches, never more than are pending, so that the
 	// messages read past the end of the range stay few.
 	batch, pending := 1, uint64(1)
@@ -547,7 +558,14 @@ func scan(ctx context.Context, js jetstream.JetStream, stream, subject string, f
 	if err != nil {
 		return fmt.Errorf("live: %s: %w", stream, err)
 	}
-	defer it.Stop()
+	defer func() {
+		it.Stop()
+		if info := cons.CachedInfo(); info != nil {
+			dctx, cancel := context.WithTimeout(context.Background(), 2*time.Second)
+			js.DeleteConsumer(dctx, stream, info.Name)
+			cancel()
+		}
+	}()
 	for {
 		type next struct {
 			m   jetstream.Msg

@@ -387,6 +387,25 @@ func TestHistoryRevisionRuns(t *testing.T) {
 		}
 	}
 
+	// Queries leave no consumer behind on the streams they read (each
+	// fetch's consumer is deleted; without that, the last one lingers
+	// for the 10 s inactivity threshold).
+	waitFor(t, 5*time.Second, "the query consumers to be deleted", func() bool {
+		n := 0
+		for _, name := range []string{broker.StreamEstimates, broker.StreamAlarms} {
+			st, err := h.js.Stream(ctx, name)
+			if err != nil {
+				t.Fatal(err)
+			}
+			info, err := st.Info(ctx)
+			if err != nil {
+				t.Fatal(err)
+			}
+			n += info.State.Consumers
+		}
+		return n == 0
+	})
+
 	// The never-restarted asset: unchanged answers, positioned reads.
 	busbar := h.estimatesOf("harrow-fen-busbar")
 	before := reads("history")
