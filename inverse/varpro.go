@@ -654,6 +654,11 @@ func (sp *separable) dPhiCAt(dst []float64, np int, pts [][3]float64) {
 // u x v precomputed in uxv), then the direction parameters.
 func (sp *separable) dLineFast(out [][2][]float64, dirs, uxv [][3]float64, isDir []bool, u, p0 [3]float64, c float64, pts [][3]float64) {
 	nd := len(dirs)
+	if nd >= 2 && !isDir[0] && !isDir[1] && dirs[0][2] == 0 && dirs[1] == [3]float64{0, 0, 1} &&
+		(nd < 3 || isDir[2] && dirs[2][2] == 0) && (nd < 4 || isDir[3]) {
+		sp.dLineLevel(out, dirs, uxv, u, p0, c, pts)
+		return
+	}
 	var cols [4][]float64
 	for k := range nd {
 		cols[k] = out[k][0][:3*len(pts)]
@@ -688,6 +693,68 @@ func (sp *separable) dLineFast(out [][2][]float64, dirs, uxv [][3]float64, isDir
 			o[0] = kq*(v[1]*d2-v[2]*d1) + t*x0
 			o[1] = kq*(v[2]*d0-v[0]*d2) + t*x1
 			o[2] = kq*(v[0]*d1-v[1]*d0) + t*x2
+		}
+	}
+}
+
+// dLineLevel is dLineFast for the parameter layout of every fitted line: offset along a
+// horizontal n0, height (direction up), then optionally the azimuth (its direction
+// derivative horizontal) and the dip. It drops the products with the known zero and
+// unit components of those directions from dLineFast's expressions (x*0 + y = y, so
+// the values are the same) and keeps the loop-invariant vectors in scalars.
+func (sp *separable) dLineLevel(out [][2][]float64, dirs, uxv [][3]float64, u, p0 [3]float64, c float64, pts [][3]float64) {
+	nd := len(dirs)
+	n3 := 3 * len(pts)
+	cs, cz := out[0][0][:n3:n3], out[1][0][:n3:n3]
+	var ca, cd []float64
+	var va, vd [3]float64
+	if nd > 2 {
+		ca, va = out[2][0][:n3:n3], dirs[2]
+	}
+	if nd > 3 {
+		cd, vd = out[3][0][:n3:n3], dirs[3]
+	}
+	u0, u1, u2 := u[0], u[1], u[2]
+	p00, p01, p02 := p0[0], p0[1], p0[2]
+	n00, n01 := dirs[0][0], dirs[0][1]
+	cs0, cs1, cs2 := uxv[0][0], uxv[0][1], uxv[0][2]
+	cz0, cz1, cz2 := uxv[1][0], uxv[1][1], uxv[1][2]
+	kc := c * nT * k2pi
+	for i, r := range pts {
+		d0, d1, d2 := r[0]-p00, r[1]-p01, r[2]-p02
+		du := d0*u0 + d1*u1 + d2*u2
+		r0, r1, r2 := d0-du*u0, d1-du*u1, d2-du*u2
+		iq := 1 / (r0*r0 + r1*r1 + r2*r2)
+		kq := kc * iq
+		kq2 := 2 * kq * iq
+		x0, x1, x2 := u1*d2-u2*d1, u2*d0-u0*d2, u0*d1-u1*d0
+		row := 3 * i
+		// Offset: v = n0, horizontal.
+		t := kq2 * (r0*n00 + r1*n01)
+		o := cs[row : row+3 : row+3]
+		o[0] = t*x0 - kq*cs0
+		o[1] = t*x1 - kq*cs1
+		o[2] = t*x2 - kq*cs2
+		// Height: v = up.
+		t = kq2 * r2
+		o = cz[row : row+3 : row+3]
+		o[0] = t*x0 - kq*cz0
+		o[1] = t*x1 - kq*cz1
+		o[2] = t*x2 - kq*cz2
+		if ca != nil {
+			// Azimuth: v = du/daz, horizontal.
+			t = kq2 * du * (d0*va[0] + d1*va[1])
+			o = ca[row : row+3 : row+3]
+			o[0] = kq*(va[1]*d2) + t*x0
+			o[1] = kq*(-(va[0] * d2)) + t*x1
+			o[2] = kq*(va[0]*d1-va[1]*d0) + t*x2
+		}
+		if cd != nil {
+			t = kq2 * du * (d0*vd[0] + d1*vd[1] + d2*vd[2])
+			o = cd[row : row+3 : row+3]
+			o[0] = kq*(vd[1]*d2-vd[2]*d1) + t*x0
+			o[1] = kq*(vd[2]*d0-vd[0]*d2) + t*x1
+			o[2] = kq*(vd[0]*d1-vd[1]*d0) + t*x2
 		}
 	}
 }
