@@ -120,7 +120,9 @@
 // while within one revision a window published twice by a takeover is
 // still stored once. The stream then holds one entry per window and
 // revision; the last one stored for a window (highest revision)
-// supersedes the others, and latest shows it. Deleting a checkpoint by
+// supersedes the others, and latest shows it. Its alarms likewise
+// supersede the older revisions' alarms of that window, also when it
+// raises none (see Queries). Deleting a checkpoint by
 // hand resets the revision to 0, whose ids the broker deduplicates
 // within its window, and breaks the revision order that queries rely on
 // (below): restart an asset instead.
@@ -187,7 +189,7 @@
 // above, about 2 log2(stream length) probes per estimate run of a
 // revision above 0, a few probes per window whose alarms are of an
 // older revision, and the dropped alarms it reads; it never scans a
-// stream (see alarmrevisions.go).
+// stream.
 //
 // # Unknown assets
 //

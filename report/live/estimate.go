@@ -58,6 +58,8 @@ type Alarm struct {
 	Threshold float64 `json:"threshold"`
 	Message   string  `json:"message"`
 	// Revision is the read revision of the estimate that raised the alarm.
+	// Once a higher revision has processed the window, the alarm listing
+	// shows that revision's alarms of the window instead (see Alarms).
 	Revision int `json:"revision,omitempty"`
 }
 

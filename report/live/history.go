@@ -92,8 +92,9 @@ func (s *Service) History(ctx context.Context, asset string, from, to float64, l
 // returned, none when it raised none: an alarm that a re-read window no
 // longer raises is dropped once the re-read has stored the window's
 // estimate, and kept until then. The AllRevisions option returns every
-// stored alarm instead. See latestAlarms for how the window's highest
-// revision is found without scanning the estimates.
+// stored alarm instead. The package doc (Queries) says how a window's
+// highest revision is found without scanning the estimates, and what
+// that costs.
 func (s *Service) Alarms(ctx context.Context, asset, kind string, from, to float64, since time.Time, limit int, opts ...QueryOption) ([]Alarm, error) {
 	o := queryOpts(opts)
 	limit = clampLimit(limit)

@@ -22,7 +22,8 @@ import (
 // HeaderRevision is set on estimates and alarms published after a restart
 // request: the asset's read revision (1 after the first restart, and so
 // on). Estimates without it are revision 0. When a window was read again
-// the estimate of the highest revision supersedes the earlier ones.
+// the estimate of the highest revision supersedes the earlier ones, and
+// so do its alarms (none when it raised none).
 const HeaderRevision = "Uc-Revision"
 
 // restartPoll is how often a worker looks for a restart request of the
