@@ -374,7 +374,7 @@ func (f *fitter) bestOf(starts []start, quick bool) (*candidate, error) {
 		}
 		sp := newSeparable(sub.pts, sub.y, sub.nrhs, f.set.Background, f.sv.centroid, geom, dips)
 		sp.ptsLo, sp.ptsHi = sub.lo, sub.hi
-		sp.lmWork, sp.scr = &f.scr.lm, f.scr
+		sp.lmWork, sp.scr, sp.pd = &f.scr.lm, f.scr, &sub.proj
 		if prev != nil {
 			sp.a, sp.qty, sp.coef, sp.tau, sp.bbar = prev.a, prev.qty, prev.coef, prev.tau, prev.bbar
 			prev.a, prev.qty, prev.coef, prev.tau, prev.bbar, prev.ok = nil, nil, nil, nil, nil, false
@@ -408,7 +408,7 @@ func (f *fitter) bestOf(starts []start, quick bool) (*candidate, error) {
 			// Screened on a subsample: polish on every reading.
 			st.sp = newSeparable(f.sv.pts, f.sv.y, f.sv.nrhs, f.set.Background, f.sv.centroid, st.st.lines, st.st.dips)
 			st.sp.ptsLo, st.sp.ptsHi = f.sv.lo, f.sv.hi
-			st.sp.lmWork, st.sp.scr = &f.scr.lm, f.scr
+			st.sp.lmWork, st.sp.scr, st.sp.pd = &f.scr.lm, f.scr, &f.sv.proj
 		}
 		lmp, _ := st.sp.problem()
 		f.starts++

@@ -22,6 +22,7 @@ type survey struct {
 	extent   float64      // largest horizontal distance from the centroid, m
 	anom     [][3]float64 // anomaly of y, once computed
 	screen   *survey      // subsample for ranking starts (screening), once computed
+	proj     projData     // y projected off the uniform background, for the separables
 }
 
 // screenPoints is the number of readings above which starts are ranked on an evenly

@@ -91,6 +91,7 @@ type separable struct {
 	bn2               [3]float64   // squared norms of the weighted uniform background columns
 	bbar              [][3]float64 // per column of a: its projection coefficients on them
 	dblk, full        []float64    // derivative columns; unweighted basis for residuals
+	pd                *projData    // the survey's projected data, shared by its separables, or nil
 	rbuf              []float64    // the residuals of fullResiduals
 	lmWork            *[]float64   // the LM engine's workspace (shared within a fit), or nil
 	scr               *scratch     // lends the work buffers above, or nil to allocate them
@@ -101,6 +102,17 @@ type separable struct {
 	tlo, thi     []float64
 	at           []float64 // x of the cached state
 	ok           bool
+}
+
+// projData holds the unweighted data of a survey with the uniform background projected
+// out (P_B y, m x nrhs column-major, as evaluate leaves it in qty before the
+// Householder reflections) and the projection coefficients. They do not depend on the
+// geometry, so the first unweighted evaluation on the survey forms them and every other
+// separable on it copies them (a weighted one forms its own).
+type projData struct {
+	ok  bool
+	qty []float64
+	bar [2][3]float64
 }
 
 // dipGeom is the position of a fitted point dipole and its bounds.
@@ -368,15 +380,34 @@ func (sp *separable) project(v []float64) [3]float64 {
 	var s0, s1, s2 float64
 	w := sp.w
 	if w == nil {
-		for i := range n {
-			t := v[3*i : 3*i+3 : 3*i+3]
+		// Two readings per step; each sum still takes the rows in order.
+		t := v
+		for len(t) >= 6 {
+			s0 += t[0]
+			s1 += t[1]
+			s2 += t[2]
+			s0 += t[3]
+			s1 += t[4]
+			s2 += t[5]
+			t = t[6:]
+		}
+		if len(t) >= 3 {
 			s0 += t[0]
 			s1 += t[1]
 			s2 += t[2]
 		}
 		s0, s1, s2 = s0/sp.bn2[0], s1/sp.bn2[1], s2/sp.bn2[2]
-		for i := range n {
-			t := v[3*i : 3*i+3 : 3*i+3]
+		t = v
+		for len(t) >= 6 {
+			t[0] -= s0
+			t[1] -= s1
+			t[2] -= s2
+			t[3] -= s0
+			t[4] -= s1
+			t[5] -= s2
+			t = t[6:]
+		}
+		if len(t) >= 3 {
 			t[0] -= s0
 			t[1] -= s1
 			t[2] -= s2
@@ -425,7 +456,15 @@ func (sp *separable) evaluate(x []float64) error {
 	if err := sp.fillPhi(sp.a, 1, m, sp.pos); err != nil {
 		return err
 	}
-	if nr == 1 && sp.w == nil {
+	// The projected unweighted data do not depend on the geometry: once a separable on
+	// the survey has formed them, the others copy them.
+	pd := sp.pd
+	if !sp.uniform() || sp.w != nil {
+		pd = nil
+	}
+	if pd != nil && pd.ok {
+		copy(sp.qty, pd.qty)
+	} else if nr == 1 && sp.w == nil {
 		copy(sp.qty, sp.y)
 	} else {
 		for row := range m {
@@ -461,8 +500,17 @@ func (sp *separable) evaluate(x []float64) error {
 		for j := range g {
 			sp.bbar[j] = sp.project(sp.a[j*m : (j+1)*m])
 		}
-		for k := range nr {
-			ybar[k] = sp.project(sp.qty[k*m : (k+1)*m])
+		if pd != nil && pd.ok {
+			ybar = pd.bar
+		} else {
+			for k := range nr {
+				ybar[k] = sp.project(sp.qty[k*m : (k+1)*m])
+			}
+			if pd != nil {
+				pd.qty = sp.scr.take(m * nr)
+				copy(pd.qty, sp.qty)
+				pd.bar, pd.ok = ybar, true
+			}
 		}
 	}
 	houseQR(sp.a, m, g, sp.tau)
