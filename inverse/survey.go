@@ -23,6 +23,7 @@ type survey struct {
 	anom     [][3]float64 // anomaly of y, once computed
 	screen   *survey      // subsample for ranking starts (screening), once computed
 	proj     projData     // y projected off the uniform background, for the separables
+	across   []float64    // seedFor's workspace
 }
 
 // screenPoints is the number of readings above which starts are ranked on an evenly
@@ -308,24 +309,33 @@ func peak(a [][3]float64) int {
 // and its half-width at half maximum equals the depth below the sensor.
 func (sv *survey) seedFor(a [][3]float64, az float64) seed {
 	nh := [3]float64{math.Cos(az), -math.Sin(az), 0} // horizontal, across the line
+	// The magnitude of the component across the line at every point, kept for the
+	// second pass.
+	across := grow(sv.across, len(a))
+	sv.across = across
 	ip, bp := 0, 0.0
 	for i, v := range a {
-		if c := math.Abs(v[0]*nh[0] + v[1]*nh[1] + v[2]*nh[2]); c > bp {
+		c := math.Abs(v[0]*nh[0] + v[1]*nh[1] + v[2]*nh[2])
+		across[i] = c
+		if c > bp {
 			ip, bp = i, c
 		}
 	}
 	p := sv.pts[ip]
 	pn := p[0]*nh[0] + p[1]*nh[1] + p[2]*nh[2]
 	hw := [2]float64{math.Inf(1), math.Inf(1)}
-	for i, v := range a {
-		if math.Abs(v[0]*nh[0]+v[1]*nh[1]+v[2]*nh[2]) <= bp/2 {
-			r := sv.pts[i]
+	pts := sv.pts[:len(across)]
+	for i, c := range across {
+		if c <= bp/2 {
+			r := pts[i]
 			d := r[0]*nh[0] + r[1]*nh[1] + r[2]*nh[2] - pn
 			side := 0
 			if d < 0 {
 				side, d = 1, -d
 			}
-			hw[side] = math.Min(hw[side], d)
+			if d < hw[side] { // the distances are finite and not negative
+				hw[side] = d
+			}
 		}
 	}
 	var h float64

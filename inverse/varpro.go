@@ -269,6 +269,10 @@ func (sp *separable) fillRaw(phi []float64, rs, cs int, pos []int, pts [][3]floa
 	for l := range sp.geom {
 		ln := sp.geom[l].line()
 		u, p0, off := ln.Dir, ln.Point, col(l)*cs
+		if rs == 1 {
+			lineColumn(phi[off:off+3*len(pts)], u, p0, pts)
+			continue
+		}
 		for i, r := range pts {
 			// Line.Field with the unit direction already in hand.
 			d0, d1, d2 := r[0]-p0[0], r[1]-p0[1], r[2]-p0[2]
@@ -318,6 +322,27 @@ func (sp *separable) fillRaw(phi []float64, rs, cs int, pos []int, pts [][3]floa
 				}
 			}
 		}
+	}
+}
+
+// lineColumn writes the unweighted basis column of the line through p0 along the unit
+// vector u at the points pts (3 rows each) into col: the loop of fillRaw for a contiguous
+// column, with the vectors in scalars and no bounds checks in the loop.
+func lineColumn(col []float64, u, p0 [3]float64, pts [][3]float64) {
+	u0, u1, u2 := u[0], u[1], u[2]
+	p00, p01, p02 := p0[0], p0[1], p0[2]
+	for _, r := range pts {
+		if len(col) < 3 {
+			break
+		}
+		d0, d1, d2 := r[0]-p00, r[1]-p01, r[2]-p02
+		du := d0*u0 + d1*u1 + d2*u2
+		r0, r1, r2 := d0-du*u0, d1-du*u1, d2-du*u2
+		k := nT * k2pi / (r0*r0 + r1*r1 + r2*r2)
+		col[0] = k * (u1*d2 - u2*d1)
+		col[1] = k * (u2*d0 - u0*d2)
+		col[2] = k * (u0*d1 - u1*d0)
+		col = col[3:]
 	}
 }
 
