@@ -202,7 +202,11 @@ func levmar(p *lmProblem, x0 []float64, set lmSettings) (*lmResult, error) {
 			floats.ScaleTo(col, dj, jc[j*m:(j+1)*m])
 		}
 		copy(a[nf*m:], r)
-		houseQR(a, m, nf+1, tau)
+		// Only R and the first nf components of Q^T r are read: the reflectors of the
+		// nf columns are applied to r (in the order houseQR would) and r's own
+		// reflector is not formed.
+		houseQR(a, m, nf, tau)
+		houseApplyQT(a, m, nf, tau, a[nf*m:], 1)
 		// R (nf x nf, column-major) and the first nf components of Q^T r.
 		R := rBuf[:nf*nf]
 		qtr := qtrBuf[:nf]
@@ -436,4 +440,5 @@ func sumSq(v []float64) float64 {
 	return floats.Dot(v, v)
 }
 
-func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
+// finite reports whether x is neither infinite nor NaN (x - x is NaN exactly then).
+func finite(x float64) bool { return x-x == 0 }
