@@ -63,7 +63,10 @@
 // the fits' own sigmas, the error of the straight-line model near bends,
 // estimated robustly from the detrended differences of the whole route
 // (scatter.go) and added to every station's variance, in the anomaly test
-// and the sizes reported too. A run whose levels either side (below) do
+// and the sizes reported too. On a short route (7 to 15 usable stations)
+// tau is taken only when a chi-square test finds scatter beyond the fits'
+// sigmas, and is then widened for the few intervals it is estimated from
+// (Student's t; Route.ScatterWidening); shorter routes take none. A run whose levels either side (below) do
 // not differ by k sigma is not reported: one or two stations off, not
 // current leaving.
 //

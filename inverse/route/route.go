@@ -37,6 +37,10 @@ type Route struct {
 	// sees. The step and anomaly tests add it to every station's sigma;
 	// see scatter.go.
 	ModelScatter float64
+	// ScatterWidening is the factor by which ModelScatter was widened for
+	// the uncertainty of its own estimate on a short route (fewer than 16
+	// usable stations; see scatter.go), 1 when it was not.
+	ScatterWidening float64
 }
 
 // Build orders stations along the route they trace, measures chainage and
@@ -64,8 +68,8 @@ func Build(stations []Station, set *Settings) (*Route, error) {
 	r.Length = r.Stations[len(r.Stations)-1].Chainage
 	orient(r.Stations)
 
-	r.ModelScatter = modelScatter(usable(r.Stations), set)
-	r.Findings = append(r.Findings, steps(r.Stations, set, r.ModelScatter)...)
+	r.ModelScatter, r.ScatterWidening = modelScatter(usable(r.Stations), set)
+	r.Findings = append(r.Findings, steps(r.Stations, set, r.ModelScatter, r.ScatterWidening)...)
 	r.Findings = append(r.Findings, cover(r.Stations, set)...)
 	r.Findings = append(r.Findings, quality(r.Stations, set)...)
 	sort.SliceStable(r.Findings, func(i, j int) bool {

@@ -15,7 +15,7 @@ import (
 //
 // Every station's sigma is first widened by tau, the between-station model
 // error (see scatter.go), for the tests and for the sizes reported.
-func steps(ps []Placed, set *Settings, tau float64) (out []Finding) {
+func steps(ps []Placed, set *Settings, tau, widen float64) (out []Finding) {
 	u := usable(ps)
 	var orig map[*Placed]*Placed // the stations' own, by their widened copies
 	if tau > 0 {
@@ -33,8 +33,12 @@ func steps(ps []Placed, set *Settings, tau float64) (out []Finding) {
 		if tau <= 0 {
 			return
 		}
+		note := ""
+		if widen > 1 {
+			note = fmt.Sprintf(" (widened %.2g times for the few stations it is estimated from)", widen)
+		}
 		for i := range out {
-			out[i].Message += fmt.Sprintf("; sigmas include a between-station scatter of %.2g A beyond the fits' own", tau)
+			out[i].Message += fmt.Sprintf("; sigmas include a between-station scatter of %.2g A beyond the fits' own%s", tau, note)
 			out[i].Values = append(out[i].Values, Value{Name: "between-station scatter", Value: tau, Unit: "A"})
 		}
 	}()
