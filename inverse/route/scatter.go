@@ -46,8 +46,9 @@ const madNormal = 0.6744897501960817
 // Carlo of ten stations whose currents scatter by four times their fit
 // sigmas (model error, common in real surveys where the fits' sigmas come
 // from a nanotesla of noise) found false steps or anomalies on 73% of
-// routes with no fault. There tau is estimated the same way and widened
-// for its own uncertainty (finite-sample widening): a difference divided
+// routes with no fault. There tau is estimated when a chi-square test
+// finds it (shortScatter) and widened for its own uncertainty
+// (finite-sample widening): a difference divided
 // by sqrt(2) tau-hat behaves as Student's t with nu degrees of freedom
 // rather than a normal deviate, nu = shortNuPerInterval m (the MAD's
 // efficiency: its variance is that of a standard deviation from 0.37 m
