@@ -201,16 +201,7 @@ func excess(pts []lvPoint, f *lvFit) float64 {
 		}
 		return c
 	}
-	lo := 0.0
-	for range 60 {
-		m := (lo + hi) / 2
-		if chi(m) > dof {
-			lo = m
-		} else {
-			hi = m
-		}
-	}
-	return (lo + hi) / 2
+	return bisectDown(hi, func(t float64) bool { return chi(t) > dof })
 }
 
 // gridResult is the outcome of search: the best fit, the spread of the

@@ -151,22 +151,14 @@ func shortScatter(dI, dx, s []float64, k float64) (tau, widen float64) {
 	if trimmed <= (distuv.ChiSquared{K: float64(m - 1)}).Quantile(1-gateP) {
 		return 0, 1
 	}
-	lo, hi := 0.0, 0.0
+	var hi float64
 	for j := range m {
 		e := dI[j] - g*dx[j]
 		hi = math.Max(hi, e*e)
 	}
-	hi /= 2 * madNormal * madNormal
-	for range 60 {
-		mid := (lo + hi) / 2
-		if med(mid) > madNormal {
-			lo = mid
-		} else {
-			hi = mid
-		}
-	}
+	t2 := bisectDown(hi/(2*madNormal*madNormal), func(t2 float64) bool { return med(t2) > madNormal })
 	widen = shortWidening(shortNuPerInterval*float64(m), k)
-	return math.Sqrt((lo+hi)/2) * widen, widen
+	return math.Sqrt(t2) * widen, widen
 }
 
 // shortWidening is the factor c = t_nu^-1(Phi(k)) / k (see
@@ -211,18 +203,24 @@ func scatterOnce(dI, dx, s []float64, skip []bool, w int) float64 {
 	if !(med(0) > madNormal) {
 		return 0 // no excess
 	}
-	// med(t2) decreases with t2; bisect for med = madNormal.
+	// med(t2) decreases with t2; bisect for med = madNormal (med(hi) <=
+	// madNormal at hi = max e^2 / (2 madNormal^2)).
+	return math.Sqrt(bisectDown(hi/(2*madNormal*madNormal), func(t2 float64) bool { return med(t2) > madNormal }))
+}
+
+// bisectDown returns the root in [0, hi] of a decreasing condition: the
+// point where above(x) (true at 0, false at hi) changes, to 60 halvings.
+func bisectDown(hi float64, above func(float64) bool) float64 {
 	lo := 0.0
-	hi /= 2 * madNormal * madNormal // med(hi) <= madNormal there
 	for range 60 {
 		mid := (lo + hi) / 2
-		if med(mid) > madNormal {
+		if above(mid) {
 			lo = mid
 		} else {
 			hi = mid
 		}
 	}
-	return math.Sqrt((lo + hi) / 2)
+	return (lo + hi) / 2
 }
 
 // usable returns pointers to the usable stations of ps, in route order.
