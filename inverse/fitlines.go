@@ -47,7 +47,14 @@ func FitLines(p *Problem, set *Settings) (*Result, error) {
 	if len(p.Points) < 3 {
 		return nil, fmt.Errorf("inverse: %d readings are too few for a line fit", len(p.Points))
 	}
-	sv := newSurvey(p)
+	// Work buffers come from a pooled scratch and all go back to it when the fit is
+	// reported; the Result holds none of them.
+	scr := scratchPool.Get().(*scratch)
+	defer func() {
+		scr.release()
+		scratchPool.Put(scr)
+	}()
+	sv := newSurveyIn(p, scr)
 	if sv.extent == 0 {
 		return nil, errors.New("inverse: all readings share one horizontal position; a line cannot be located from them")
 	}
@@ -57,13 +64,6 @@ func FitLines(p *Problem, set *Settings) (*Result, error) {
 	if sv.single && s.Background == BackgroundGradient {
 		return nil, errors.New("inverse: a background gradient cannot be resolved from a single traverse; use BackgroundUniform")
 	}
-	// Work buffers come from a pooled scratch and all go back to it when the fit is
-	// reported; the Result holds none of them.
-	scr := scratchPool.Get().(*scratch)
-	defer func() {
-		scr.release()
-		scratchPool.Put(scr)
-	}()
 	f := &fitter{sv: sv, set: &s, prob: p, scr: scr}
 	res, err := f.run()
 	if !sv.single || (s.Azimuth != nil && s.Dip != nil) {
@@ -260,7 +260,7 @@ func (f *fitter) seedsFromData(d []float64) []seed {
 	if &d[0] == &f.sv.y[0] {
 		a = f.sv.anomaly()
 	} else {
-		a = anomaly(d, len(f.sv.pts), f.sv.nrhs)
+		a = anomaly(d, len(f.sv.pts), f.sv.nrhs, f.scr)
 	}
 	holdAz, _, az, _ := f.holds()
 	azs := []float64{az}
@@ -489,7 +489,7 @@ func (f *fitter) addDipole(c *candidate) (*candidate, error) {
 	if err != nil {
 		return nil, err
 	}
-	a := anomaly(res, len(f.sv.pts), f.sv.nrhs)
+	a := anomaly(res, len(f.sv.pts), f.sv.nrhs, f.scr)
 	ip := peak(a)
 	p := f.sv.pts[ip]
 	amax := norm(a[ip])

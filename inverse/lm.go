@@ -61,7 +61,9 @@ func (s lmSettings) withDefaults() lmSettings {
 }
 
 type lmResult struct {
-	x      []float64
+	x []float64
+	// r is the residual at x; with lmProblem.work it lies in that workspace and is
+	// valid only until the next use of it.
 	r      []float64
 	rss    float64
 	j      *mat.Dense // Jacobian at x
@@ -88,7 +90,20 @@ func levmar(p *lmProblem, x0 []float64, set lmSettings) (*lmResult, error) {
 	x := make([]float64, n)
 	copy(x, x0)
 	project(x, p.lower, p.upper)
-	r := make([]float64, m)
+	// One allocation (or the caller's workspace) for the residual, the Jacobian and
+	// every work vector of the iterations; each is written before it is read.
+	need := m + m*n + 7*n + 2*m + m*(n+1) + (n + 1) + 3*n*n
+	var buf []float64
+	if p.work != nil && cap(*p.work) >= need {
+		buf = (*p.work)[:need]
+	} else {
+		buf = make([]float64, need)
+		if p.work != nil {
+			*p.work = buf
+		}
+	}
+	take := func(k int) []float64 { s := buf[:k:k]; buf = buf[k:]; return s }
+	r := take(m)
 	if err := p.resid(x, r); err != nil {
 		return nil, errors.Join(errLMStart, err)
 	}
@@ -101,19 +116,6 @@ func levmar(p *lmProblem, x0 []float64, set lmSettings) (*lmResult, error) {
 	if p.jacCols == nil {
 		J = mat.NewDense(m, n, nil)
 	}
-	// One allocation (or the caller's workspace) for the Jacobian and every work vector
-	// of the iterations; each is written before it is read.
-	need := m*n + 7*n + 2*m + m*(n+1) + (n + 1) + 3*n*n
-	var buf []float64
-	if p.work != nil && cap(*p.work) >= need {
-		buf = (*p.work)[:need]
-	} else {
-		buf = make([]float64, need)
-		if p.work != nil {
-			*p.work = buf
-		}
-	}
-	take := func(k int) []float64 { s := buf[:k:k]; buf = buf[k:]; return s }
 	jc := take(m * n) // the Jacobian, column-major
 	evalJac := func() error {
 		if p.jacCols != nil {

@@ -24,6 +24,7 @@ type survey struct {
 	screen   *survey      // subsample for ranking starts (screening), once computed
 	proj     projData     // y projected off the uniform background, for the separables
 	across   []float64    // seedFor's workspace
+	scr      *scratch     // lends y and the workspaces, or nil
 }
 
 // screenPoints is the number of readings above which starts are ranked on an evenly
@@ -62,7 +63,7 @@ func (sv *survey) screening() *survey {
 // anomaly returns the anomaly of the readings (see the function anomaly), computed once.
 func (sv *survey) anomaly() [][3]float64 {
 	if sv.anom == nil {
-		sv.anom = anomaly(sv.y, len(sv.pts), sv.nrhs)
+		sv.anom = anomaly(sv.y, len(sv.pts), sv.nrhs, sv.scr)
 	}
 	return sv.anom
 }
@@ -71,13 +72,16 @@ func (sv *survey) anomaly() [][3]float64 {
 // below this fraction of the spread along it are treated as one traverse.
 const singleTraverseRatio = 0.1
 
-func newSurvey(p *Problem) *survey {
+func newSurvey(p *Problem) *survey { return newSurveyIn(p, nil) }
+
+// newSurveyIn is newSurvey with its data and workspaces lent by scr (nil to allocate).
+func newSurveyIn(p *Problem, scr *scratch) *survey {
 	n := len(p.Points)
-	sv := &survey{pts: p.Points, trav: p.Travel, nrhs: 1, zmin: math.Inf(1)}
+	sv := &survey{pts: p.Points, trav: p.Travel, nrhs: 1, zmin: math.Inf(1), scr: scr}
 	if p.isAC() {
 		sv.nrhs = 2
 	}
-	sv.y = make([]float64, 3*n*sv.nrhs)
+	sv.y = scr.take(3 * n * sv.nrhs)
 	for i := range n {
 		for j := range 3 {
 			if p.isAC() {
@@ -128,11 +132,12 @@ func newSurvey(p *Problem) *survey {
 // anomaly returns, per point, a real anomaly vector from data rows d (3 rows per point x
 // nrhs): for DC the reading minus the per-axis median (a robust background); for AC the
 // phasor rotated so that its largest component is real.
-func anomaly(d []float64, n, nrhs int) [][3]float64 {
+// Its workspace is lent by scr (nil to allocate).
+func anomaly(d []float64, n, nrhs int, scr *scratch) [][3]float64 {
 	a := make([][3]float64, n)
 	if nrhs == 1 {
 		var med [3]float64
-		col := make([]float64, n)
+		col := scr.take(n)
 		for j := range 3 {
 			for i := range n {
 				col[i] = d[3*i+j]
@@ -247,7 +252,7 @@ func (sv *survey) azimuthCandidates(a [][3]float64) []float64 {
 		out = append(out, math.Atan2(a[ip][1], -a[ip][0]))
 	}
 	amax := norm(a[ip])
-	mag := make([]float64, len(a))
+	mag := sv.scr.take(len(a))
 	var w, ce, cn float64
 	for i, v := range a {
 		m := norm(v)
