@@ -31,28 +31,29 @@ const maxLineBytes = 16 << 20
 // long row on the line where its record starts, and an unterminated quote
 // on the line of the opening quote.
 type csvReader struct {
-	name    string
-	closer  io.Closer
-	br      *bufio.Reader
-	pl      *plan
-	cfg     *config
-	delim   byte
-	ws      bool
-	ncols   int
-	used    []usedCol
-	ops     []int // per source column: canonical index, opSkip or opGroup
-	opScale []float64
-	fast    bool // lines may take fastLine
-	quotes  bool // quoted fields may hold newlines (not in blank-separated files)
-	comment []byte
-	pending chan chan csvResult
-	jobs    chan csvJob
-	done    chan struct{}
-	wg      sync.WaitGroup
-	stopped bool
-	cur     arrow.RecordBatch
-	err     error
-	last    float64
+	name     string
+	closer   io.Closer
+	br       *bufio.Reader
+	pl       *plan
+	cfg      *config
+	delim    byte
+	ws       bool
+	ncols    int
+	used     []usedCol
+	ops      []int // per source column: canonical index, opSkip or opGroup
+	opScale  []float64
+	fast     bool // lines may take fastLine
+	decComma bool // numbers write their decimals with a comma (WithDecimalComma)
+	quotes   bool // quoted fields may hold newlines (not in blank-separated files)
+	comment  []byte
+	pending  chan chan csvResult
+	jobs     chan csvJob
+	done     chan struct{}
+	wg       sync.WaitGroup
+	stopped  bool
+	cur      arrow.RecordBatch
+	err      error
+	last     float64
 }
 
 const (
@@ -186,7 +187,15 @@ func newCSVReader(name string, rd io.Reader, cfg *config) (*csvReader, error) {
 			r.ops[u.src], r.opScale[u.src] = u.c, u.scale
 		}
 	}
-	r.fast = !r.ws && r.delim != '"' && !cfg.slowOnly
+	r.decComma = cfg.decimalComma > 0 || (cfg.decimalComma == 0 && r.delim != ',' && r.firstRecordDecimalComma())
+	if r.decComma && r.delim == ',' && !r.ws {
+		return nil, fileErr(name, nil, "decimal commas need a delimiter other than the comma")
+	}
+	if r.decComma {
+		pl.meta["decimal_separator"] = ","
+		pl.buildSchema()
+	}
+	r.fast = !r.ws && r.delim != '"' && !cfg.slowOnly && !r.decComma
 	startLine := lineNo + 1
 	if pl.geodetic && pl.origin == nil {
 		// The origin is the first reading: parse ahead to it.
@@ -400,6 +409,69 @@ func headerName(f []byte) string {
 	return s
 }
 
+// parseDecimalComma parses a number written with a decimal comma: the comma
+// becomes a point in buf (returned for reuse) and a point is refused.
+func parseDecimalComma(t, buf []byte) (float64, bool, []byte) {
+	if bytes.IndexByte(t, '.') >= 0 {
+		return 0, false, buf
+	}
+	buf = append(buf[:0], t...)
+	if i := bytes.IndexByte(buf, ','); i >= 0 {
+		buf[i] = '.'
+	}
+	v, ok := parseNumber(buf)
+	return v, ok, buf
+}
+
+// firstRecordDecimalComma peeks at the first data record (without
+// consuming it) and reports whether a mapped numeric field is written with
+// a decimal comma: digits, one comma, digits.
+func (r *csvReader) firstRecordDecimalComma() bool {
+	peek, _ := r.br.Peek(64 << 10)
+	for len(peek) > 0 {
+		i := bytes.IndexByte(peek, '\n')
+		ln := peek
+		if i >= 0 {
+			ln, peek = peek[:i], peek[i+1:]
+		} else {
+			peek = nil
+		}
+		ln = bytes.TrimRight(ln, "\r")
+		t := bytes.TrimSpace(ln)
+		if len(t) == 0 || (len(r.comment) > 0 && bytes.HasPrefix(t, r.comment)) {
+			continue
+		}
+		fields := splitFields(ln, r.delim, r.ws, nil)
+		for _, u := range r.used {
+			if u.c == cGroup || u.src >= len(fields) {
+				continue
+			}
+			if decimalCommaText(trimField(fields[u.src])) {
+				return true
+			}
+		}
+		return false
+	}
+	return false
+}
+
+// decimalCommaText reports whether t is [sign] digits "," digits.
+func decimalCommaText(t []byte) bool {
+	if len(t) > 0 && (t[0] == '-' || t[0] == '+') {
+		t = t[1:]
+	}
+	i := bytes.IndexByte(t, ',')
+	if i <= 0 || i == len(t)-1 {
+		return false
+	}
+	for k, c := range t {
+		if k != i && (c < '0' || c > '9') {
+			return false
+		}
+	}
+	return true
+}
+
 // guessDelimiter picks the most frequent of , ; tab | in the header line,
 // or runs of blanks when none occurs.
 func guessDelimiter(line []byte) (byte, bool) {
@@ -504,6 +576,7 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch, plain bool) 
 	pl, cfg := r.pl, r.cfg
 	comment := []byte(cfg.comment)
 	var fields [][]byte
+	var num []byte // a decimal-comma number rewritten with a point
 	need := rb.n + bytes.Count(data, []byte{'\n'}) + 1
 	for _, u := range r.used {
 		if u.c != cGroup {
@@ -588,7 +661,13 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch, plain bool) 
 				rb.group = append(rb.group, string(t))
 				continue
 			}
-			v, ok := parseNumber(t)
+			var v float64
+			var ok bool
+			if r.decComma {
+				v, ok, num = parseDecimalComma(t, num)
+			} else {
+				v, ok = parseNumber(t)
+			}
 			scale := u.scale
 			if !ok && u.c == cTime {
 				if v, ok = parseTimestamp(t); ok {
@@ -609,6 +688,11 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch, plain bool) 
 					what := "is not a number"
 					if u.c == cTime {
 						what = "is not a number or an RFC 3339 time"
+					}
+					if r.decComma {
+						what += " (the file is read with decimal commas, so a point is not a decimal point)"
+					} else if r.delim != ',' && decimalCommaText(t) {
+						what += " (a decimal comma? read the file with decimal commas: --decimal-comma, ingest.WithDecimalComma)"
 					}
 					return lineErr(r.name, fieldLine(ln, fields[u.src], line), pl.header[u.src], string(t), "%s %s", quoteText(string(t)), what)
 				} else {

@@ -73,6 +73,7 @@ type config struct {
 	allowMissing   bool
 	allowBackwards bool
 	keepBaseline   bool // IAGA-2002: leave variation data in the baseline frame (WithIAGABaselineFrame)
+	decimalComma   int  // CSV: 0 detect, 1 decimal commas, -1 decimal points (WithDecimalComma)
 	batchRows      int
 	chunkBytes     int
 	workers        int
@@ -216,6 +217,21 @@ func WithAllowBackwards(ok bool) Option { return func(c *config) { c.allowBackwa
 // east), the horizontal components are turned by it to geographic north and
 // east (see the package documentation).
 func WithIAGABaselineFrame(keep bool) Option { return func(c *config) { c.keepBaseline = keep } }
+
+// WithDecimalComma says whether CSV numbers write their decimals with a
+// comma (12,5) instead of a point (12.5), as spreadsheets do in many locales.
+// By default a file whose delimiter is not a comma is read with decimal
+// commas when a mapped numeric field of its first data record is written
+// that way (digits, one comma, digits). With decimal commas a point in a
+// number is an error (it could be a thousands separator), not a decimal.
+func WithDecimalComma(on bool) Option {
+	return func(c *config) {
+		c.decimalComma = -1
+		if on {
+			c.decimalComma = 1
+		}
+	}
+}
 
 // WithBatchSize sets the number of rows per record batch for readers that
 // choose it (IAGA-2002, Samples); CSV batches follow its parse chunks.

@@ -30,6 +30,7 @@ type readFlags struct {
 	origin     string
 	// iagaBaseline leaves IAGA-2002 variation data in the baseline frame.
 	iagaBaseline bool
+	decimalComma bool
 }
 
 func (f *readFlags) add(fs *pflag.FlagSet) {
@@ -44,6 +45,7 @@ func (f *readFlags) add(fs *pflag.FlagSet) {
 	fs.StringSliceVar(&f.header, "header", nil, "column names for a CSV file without a header line")
 	fs.StringVar(&f.frame, "frame", "enu", "axes of the field and position columns: enu, ned or sensor")
 	fs.StringVar(&f.origin, "origin", "first", "origin for WGS84 positions: first, mean or LAT,LON[,HEIGHT]")
+	fs.BoolVar(&f.decimalComma, "decimal-comma", false, "CSV numbers write decimals with a comma (12,5); default: detected from the first data row when the delimiter is not a comma; --decimal-comma=false refuses them")
 	fs.BoolVar(&f.iagaBaseline, "iaga-baseline-frame", false, "leave IAGA-2002 variation data (H D Z, H E Z) in the observatory's baseline frame instead of turning them to geographic north by the header's DECBAS")
 }
 
@@ -78,6 +80,9 @@ func (f *readFlags) options(fs *pflag.FlagSet) ([]ingest.Option, error) {
 	}
 	if f.iagaBaseline {
 		opts = append(opts, ingest.WithIAGABaselineFrame(true))
+	}
+	if fs.Changed("decimal-comma") {
+		opts = append(opts, ingest.WithDecimalComma(f.decimalComma))
 	}
 	if fs.Changed("frame") {
 		fr, err := ingest.ParseFrame(f.frame)

@@ -31,6 +31,7 @@ type locateOptions struct {
 	calibration  string
 	base         string
 	baseFrame    bool // --iaga-baseline-frame
+	decimalComma bool // --decimal-comma, when given (see given)
 	freq         float64
 	window       float64
 	count        string
@@ -66,6 +67,7 @@ var resultFiles = []string{report.FileJSON, report.FileCSV, report.FileGeoJSON, 
 func (o *locateOptions) setFlags(fs *pflag.FlagSet) {
 	fs.StringVar(&o.calibration, "calibration", "", "apply the sensor calibration in `CAL.json` (from undercurrent calibrate)")
 	fs.StringVar(&o.base, "base", "", "subtract the diurnal variation recorded by the base station log `BASE` (any log format, IAGA-2002 too)")
+	fs.BoolVar(&o.decimalComma, "decimal-comma", false, "CSV numbers write decimals with a comma (12,5); default: detected from the first data row when the delimiter is not a comma; --decimal-comma=false refuses them")
 	fs.BoolVar(&o.baseFrame, "iaga-baseline-frame", false, "leave an IAGA-2002 base log's variation data in the observatory's baseline frame instead of turning them to geographic north by its DECBAS")
 	fs.Float64Var(&o.freq, "freq", 0, "demodulate the AC field at `HZ` (50, 60, 16.7...) and fit RMS currents with phase; without it the DC field is fitted")
 	fs.Float64Var(&o.window, "window", 0, "AC demodulation window, `S` seconds (default ten cycles)")
@@ -334,6 +336,9 @@ func readSurvey(o *locateOptions, logs []string) (*survey, error) {
 	}
 	if len(o.units) > 0 {
 		opts = append(opts, ingest.WithUnits(o.units...))
+	}
+	if _, given := o.given["decimal-comma"]; given {
+		opts = append(opts, ingest.WithDecimalComma(o.decimalComma))
 	}
 	index := map[string]*group{}
 	var baseNotes []string
