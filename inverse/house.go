@@ -158,14 +158,8 @@ func jacobiSVD(a []float64, n int, s, v []float64) bool {
 		for p := 0; p < n-1; p++ {
 			ap := a[p*n : (p+1)*n]
 			for q := p + 1; q < n; q++ {
+				alpha, beta, gamma := colProducts(ap, a[q*n:(q+1)*n])
 				aq := a[q*n : (q+1)*n]
-				var alpha, beta, gamma float64
-				for i, x := range ap {
-					y := aq[i]
-					alpha += x * x
-					beta += y * y
-					gamma += x * y
-				}
 				if gamma == 0 {
 					continue
 				}
@@ -222,6 +216,18 @@ func jacobiSVD(a []float64, n int, s, v []float64) bool {
 		}
 	}
 	return converged
+}
+
+// colProducts returns x.x, y.y and x.y, each summed in index order; len(y) >= len(x).
+func colProducts(x, y []float64) (xx, yy, xy float64) {
+	y = y[:len(x)]
+	for i, a := range x {
+		b := y[i]
+		xx += a * a
+		yy += b * b
+		xy += a * b
+	}
+	return xx, yy, xy
 }
 
 func rotate(x, y []float64, c, s float64) {

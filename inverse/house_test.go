@@ -1,6 +1,7 @@
 package inverse
 
 import (
+	"fmt"
 	"math"
 	"math/rand/v2"
 	"testing"
@@ -143,5 +144,29 @@ func TestNorm2ExtremeMagnitudes(t *testing.T) {
 		if got, want := norm2(x), math.Hypot(x[0], x[1]); math.Abs(got-want) > 1e-15*want {
 			t.Errorf("norm2(%v) = %g, want %g", x, got, want)
 		}
+	}
+}
+
+// BenchmarkJacobiSVD times the SVD of the triangular factors the fits decompose: the
+// LM step's (4 and 8 free parameters) and the covariance's (6 and 13 columns).
+func BenchmarkJacobiSVD(b *testing.B) {
+	for _, n := range []int{4, 6, 8, 13} {
+		b.Run(fmt.Sprintf("n=%d", n), func(b *testing.B) {
+			rng := rand.New(rand.NewPCG(5, uint64(n)))
+			_, a := testMatrix(rng, 3*n, n, 3)
+			tau := make([]float64, n)
+			houseQR(a, 3*n, n, tau)
+			r := make([]float64, n*n)
+			for k := range n {
+				copy(r[k*n:k*n+k+1], a[k*3*n:k*3*n+k+1])
+			}
+			w := make([]float64, n*n)
+			v := make([]float64, n*n)
+			s := make([]float64, n)
+			for b.Loop() {
+				copy(w, r)
+				jacobiSVD(w, n, s, v)
+			}
+		})
 	}
 }
