@@ -43,16 +43,38 @@ func houseQR(a []float64, m, n int, tau []float64) {
 	}
 }
 
-// houseApply2 is houseApply on two columns at once.
+// houseApply2 is houseApply on two columns at once, with the same results: the two
+// inner products with v are formed in one pass (dotPair).
 func houseApply2(v []float64, tau float64, c, d []float64) {
-	houseApply(v, tau, c)
-	houseApply(v, tau, d)
+	c, d = c[:len(v)], d[:len(v)]
+	var sc, sd float64
+	if len(v) > 1 {
+		sc, sd = dotPair(v[1:], c[1:], d[1:])
+	}
+	sc = (c[0] + sc) * tau
+	sd = (d[0] + sd) * tau
+	c[0] -= sc
+	d[0] -= sd
+	if len(v) > 1 {
+		floats.AddScaled(c[1:], -sc, v[1:])
+		floats.AddScaled(d[1:], -sd, v[1:])
+	}
 }
 
 // houseApplyQT overwrites the k columns of the m x k column-major matrix c with Q^T c,
 // Q being the factor left in a and tau by houseQR(a, m, n, tau).
 func houseApplyQT(a []float64, m, n int, tau []float64, c []float64, k int) {
-	for col := range k {
+	col := 0
+	for ; col+1 < k; col += 2 {
+		// Two columns at a time; each sees the reflectors in the same order as alone.
+		cc, dd := c[col*m:(col+1)*m], c[(col+1)*m:(col+2)*m]
+		for j := range n {
+			if tau[j] != 0 {
+				houseApply2(a[j*m+j:(j+1)*m], tau[j], cc[j:], dd[j:])
+			}
+		}
+	}
+	for ; col < k; col++ {
 		cc := c[col*m : (col+1)*m]
 		for j := range n {
 			if tau[j] != 0 {

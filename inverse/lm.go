@@ -160,7 +160,7 @@ func levmar(p *lmProblem, x0 []float64, set lmSettings) (*lmResult, error) {
 		rn := math.Sqrt(rss)
 		for j := range n {
 			col := jc[j*m : (j+1)*m]
-			cn2[j], grad[j] = dot2(col, col), dot2(col, r)
+			cn2[j], grad[j] = dotPair(col, col, r)
 		}
 		for j := range n {
 			cn, g := math.Sqrt(cn2[j]), grad[j]
@@ -433,10 +433,6 @@ func project(x, lower, upper []float64) {
 	}
 }
 
-// dot2 returns a.b; len(b) >= len(a).
-func dot2(a, b []float64) float64 {
-	return floats.Dot(a, b[:len(a)])
-}
 
 func sumSq(v []float64) float64 {
 	return floats.Dot(v, v)

@@ -1,0 +1,73 @@
+//go:build !noasm && !gccgo && !safe
+
+#include "textflag.h"
+
+// func dotPair(x, y, z []float64) (xy, xz float64)
+//
+// Two inner products sharing x, each summed exactly as gonum's DotUnitary on amd64
+// sums one (four partial sums over the elements i mod 4, held in the lanes of two
+// registers; the last len(x) mod 4 products added to the first; then the lanes
+// combined as (s0 + s2) + (s1 + s3)), so that the results are bit for bit those of
+// floats.Dot(x, y) and floats.Dot(x, z). Loading x once for both and running four
+// addition chains instead of two, it takes about the time of one. len(y) and len(z)
+// must be at least len(x).
+TEXT ·dotPair(SB), NOSPLIT, $0-88
+	MOVQ x_base+0(FP), R8
+	MOVQ x_len+8(FP), DI
+	MOVQ y_base+24(FP), R9
+	MOVQ z_base+48(FP), R10
+	XORPS X7, X7
+	XORPS X8, X8
+	XORPS X9, X9
+	XORPS X10, X10
+	MOVQ $0, SI
+	SUBQ $4, DI
+	JL   tail
+
+loop:
+	MOVUPD 0(R8)(SI*8), X0
+	MOVUPD 16(R8)(SI*8), X2
+	MOVUPD 0(R9)(SI*8), X1
+	MOVUPD 16(R9)(SI*8), X3
+	MOVUPD 0(R10)(SI*8), X4
+	MOVUPD 16(R10)(SI*8), X5
+	MULPD  X0, X1
+	MULPD  X2, X3
+	MULPD  X0, X4
+	MULPD  X2, X5
+	ADDPD  X1, X7
+	ADDPD  X3, X8
+	ADDPD  X4, X9
+	ADDPD  X5, X10
+	ADDQ   $4, SI
+	SUBQ   $4, DI
+	JGE    loop
+
+tail:
+	ADDQ $4, DI
+	JLE  end
+
+onemore:
+	MOVSD 0(R8)(SI*8), X0
+	MOVSD 0(R9)(SI*8), X1
+	MOVSD 0(R10)(SI*8), X4
+	MULSD X0, X1
+	MULSD X0, X4
+	ADDSD X1, X7
+	ADDSD X4, X9
+	ADDQ  $1, SI
+	SUBQ  $1, DI
+	JNZ   onemore
+
+end:
+	ADDPD    X8, X7
+	MOVSD    X7, X0
+	UNPCKHPD X7, X7
+	ADDSD    X0, X7
+	MOVSD    X7, xy+72(FP)
+	ADDPD    X10, X9
+	MOVSD    X9, X0
+	UNPCKHPD X9, X9
+	ADDSD    X0, X9
+	MOVSD    X9, xz+80(FP)
+	RET
