@@ -63,15 +63,20 @@ import (
 // from a stronger one, of either sign) to absorb an object's field beside
 // it; the search above holds the pair, the refits keep it (they may take
 // as many conductors as before) and the object is misplaced. So when the
-// conductors it starts from hold such a pair (closeLines: a line within
-// its own depth, horizontally, of a stronger one), a second search starts
-// from the conductors with the pair merged (the weaker line dropped, the
-// refits allowed no more conductors than remain) and from the object's
-// position the first found, up to splitRounds rounds of block coordinate
-// descent (it starts farther from the minimum; on the split-cable fixture
-// of dipole_split_test.go it takes about a dozen), and the search with
-// the larger gain in the criterion is kept: two conductors truly that
-// close fit worse merged. Without a close pair only the first search runs.
+// conductors it starts from hold such a pair (closeLines: a line
+// horizontally within the depth of the deeper of the two of a stronger
+// one), a second search starts from the conductors with the pair merged
+// (the weaker line dropped, the refits allowed no more conductors than
+// remain) and from the object's position the first found. It starts far
+// from the minimum, with the object's depth and moment and the conductor
+// beside it strongly correlated: block coordinate descent creeps (on the
+// split-cable fixtures of dipole_split_test.go it still moved 1-2 cm a
+// round after 30 rounds) and the Hessian there need not be positive
+// definite, so it takes up to splitRounds rounds of descent, then
+// Levenberg-Marquardt steps on the joint fit (jointFit.settle) in place
+// of Newton's. The search with the larger gain in the criterion is kept:
+// two conductors truly that close fit worse merged. Without a close pair
+// only the first search runs, as before.
 const (
 	weakShare     = 0.05
 	dipoleMargin  = 2.0 // m
@@ -529,7 +534,10 @@ func searchDipole(f *Fit) *dipoleSearch {
 		return nil
 	}
 	best := searchFrom(f, lines, nil)
-	if merged := closeLines(f.Problem, lines); len(merged) < len(lines) && best != nil {
+	if best == nil {
+		return nil
+	}
+	if merged := closeLines(f.Problem, lines); len(merged) < len(lines) {
 		start := best.obj.Point
 		if ds := searchFrom(f, merged, &start); ds != nil && ds.gain > best.gain {
 			best = ds
@@ -539,12 +547,13 @@ func searchDipole(f *Fit) *dipoleSearch {
 }
 
 // closeLines returns lines (the strongest first after it) without each
-// line that lies within its own depth below the readings' mean height,
-// horizontally, of a stronger line kept. Two lines that close give nearly
-// the field of one line and a line dipole: a fit splits a conductor so
-// when an object's field beside it needs absorbing (a pair of opposite or
-// like currents a few decimetres apart), and the search that holds the
-// pair keeps it and misplaces the object.
+// line that lies horizontally within the depth below the readings' mean
+// height of the deeper of the two of a stronger line kept. The field of a
+// line spreads across the traverse over about its depth, so two lines that
+// close give nearly the field of one line and a line dipole: a fit splits
+// a conductor so when an object's field beside it needs absorbing (a pair
+// of opposite or like currents a few decimetres apart), and the search
+// that holds the pair keeps it and misplaces the object.
 func closeLines(p *inverse.Problem, lines []*inverse.SourceEstimate) []*inverse.SourceEstimate {
 	var zm float64
 	for _, q := range p.Points {
@@ -556,7 +565,7 @@ func closeLines(p *inverse.Problem, lines []*inverse.SourceEstimate) []*inverse.
 	for _, s := range order {
 		near := false
 		for _, k := range kept {
-			if offLine(k, s.Point) <= zm-s.Point[2] {
+			if offLine(k, s.Point) <= math.Max(zm-s.Point[2], zm-k.Point[2]) {
 				near = true
 				break
 			}
@@ -645,7 +654,11 @@ func searchFrom(f *Fit, from []*inverse.SourceEstimate, at *[3]float64) *dipoleS
 	// (A vertical line has no joint model: the descent's position stands
 	// and the sigmas are zero, not resolved.)
 	if jf := newJointFit(loc, pos); jf != nil {
-		rss = jf.refine(rss)
+		if at != nil {
+			rss = jf.settle(rss)
+		} else {
+			rss = jf.refine(rss)
+		}
 		pos = jf.pos
 		if r, _ = loc.fit(pos); r == nil {
 			return nil
@@ -901,6 +914,55 @@ func (j *jointFit) refine(rss0 float64) float64 {
 	j.set(make([]float64, len(j.step)))
 	return rss0
 }
+
+// settle is refine for a start far from the minimum, where the Hessian
+// need not be positive definite: Levenberg-Marquardt steps (H + lambda
+// diag H) dx = -g, lambda divided by 10 after a step that lowers the
+// residual sum of squares and multiplied by 10 after one that does not
+// (Marquardt, J. SIAM 11(2):431-441, 1963, from memory), up to
+// settleRounds steps, stopping when the dipole moves less than 0.1 mm or
+// no step lowers the residual.
+func (j *jointFit) settle(rss0 float64) float64 {
+	np := len(j.step)
+	lambda := 1e-3
+	x := make([]float64, np)
+	for range settleRounds {
+		g, H := j.derivatives(rss0)
+		moved := false
+		for lambda < 1e8 {
+			A := mat.NewSymDense(np, nil)
+			A.CopySym(H)
+			for a := range np {
+				A.SetSym(a, a, H.At(a, a)+lambda*math.Max(math.Abs(H.At(a, a)), 1e-12))
+			}
+			var ch mat.Cholesky
+			var dx mat.VecDense
+			if !ch.Factorize(A) || ch.SolveVecTo(&dx, g) != nil {
+				lambda *= 10
+				continue
+			}
+			for a := range x {
+				x[a] = -dx.AtVec(a)
+			}
+			if r := j.rss(x); r < rss0 {
+				j.move(x)
+				rss0, moved = r, true
+				lambda = math.Max(lambda/10, 1e-9)
+				break
+			}
+			lambda *= 10
+		}
+		if !moved || math.Hypot(math.Hypot(x[0], x[1]), x[2]) < 1e-4 {
+			break
+		}
+	}
+	j.set(make([]float64, np))
+	return rss0
+}
+
+// settleRounds bounds the steps of settle; on the split-cable fixtures it
+// takes under ten.
+const settleRounds = 30
 
 // uncertainty returns the one-sigma uncertainties of the dipole's position
 // and of its moment's magnitude, the lines' geometry free, about the

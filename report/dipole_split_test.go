@@ -77,19 +77,29 @@ func splitFits(t testing.TB, obj [3]float64, moment [3]float64) []Fit {
 // and moment within 4 of their reported sigmas of the truth (the sigmas the
 // Monte Carlo of dipole_coverage_test.go finds calibrated), that no current
 // anomaly is reported, and that the refitted cable 2 there carries -15 A
-// within 4 sigma. The case with twice the moment, whose fit does not
-// split, is checked the same way.
+// within 4 sigma. Besides the object above, the same object 1 m from
+// cable 2 (north 3.5 m) with half, the same and twice the moment, whose
+// fits split cable 2 too (a like pair, or a shallow weak line beside it),
+// and the case with twice the moment at north 4.5 m, whose fit does not
+// split. Before the merged search the four split cases found no object.
 func TestBuildFindsObjectBesideSplitConductor(t *testing.T) {
+	scaled := func(k float64) [3]float64 {
+		return [3]float64{k * splitMoment[0], k * splitMoment[1], k * splitMoment[2]}
+	}
 	for _, c := range []struct {
 		name   string
+		obj    [3]float64
 		moment [3]float64
 		split  bool
 	}{
-		{"split fit", splitMoment, true},
-		{"twice the moment", [3]float64{2 * splitMoment[0], 2 * splitMoment[1], 2 * splitMoment[2]}, false},
+		{"split fit", splitObject, splitMoment, true},
+		{"twice the moment", splitObject, scaled(2), false},
+		{"1 m from cable 2, like pair", [3]float64{30.4, 3.5, -0.8}, splitMoment, true},
+		{"1 m from cable 2, twice the moment", [3]float64{30.4, 3.5, -0.8}, scaled(2), true},
+		{"1 m from cable 2, four times the moment", [3]float64{30.4, 3.5, -0.8}, scaled(4), true},
 	} {
 		t.Run(c.name, func(t *testing.T) {
-			fits := splitFits(t, splitObject, c.moment)
+			fits := splitFits(t, c.obj, c.moment)
 			// The fixture is what it says: the fourth traverse's fit has
 			// a close pair at cable 2 or not.
 			f := &fits[3]
@@ -104,7 +114,7 @@ func TestBuildFindsObjectBesideSplitConductor(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			obj, m := splitObject, c.moment
+			obj, m := c.obj, c.moment
 			found := 0
 			for _, f := range d.Findings {
 				if f.Kind == "current-anomaly" {
@@ -163,8 +173,9 @@ func TestBuildFindsObjectBesideSplitConductor(t *testing.T) {
 }
 
 // TestCloseLines checks which lines closeLines keeps: the Harrow Fen
-// cables, 2.5 m apart at 1.0 and 1.2 m, stay two; a weaker line within its
-// depth of a stronger one, of either sign, goes; one just beyond stays.
+// cables, 2.5 m apart at 1.0 and 1.2 m, stay two; a weaker line within the
+// depth of the deeper of the two of a stronger one, of either sign, goes;
+// one just beyond stays.
 func TestCloseLines(t *testing.T) {
 	p := &inverse.Problem{Points: [][3]float64{{0, -6, 0}, {0, 9, 0}}}
 	line := func(north, depth, current float64) *inverse.SourceEstimate {
@@ -178,7 +189,9 @@ func TestCloseLines(t *testing.T) {
 		{"two cables", []*inverse.SourceEstimate{line(0, 1, 40), line(2.5, 1.2, -15)}, []float64{40, -15}},
 		{"opposite pair", []*inverse.SourceEstimate{line(0, 1, 40), line(2.62, 1.22, -19), line(2.91, 0.8, 3)}, []float64{40, -19}},
 		{"like pair, weaker first", []*inverse.SourceEstimate{line(2.9, 0.8, 3), line(2.62, 1.22, 19)}, []float64{19}},
-		{"just beyond its depth", []*inverse.SourceEstimate{line(0, 1, 40), line(0.85, 0.8, 5)}, []float64{40, 5}},
+		{"within the deeper's depth", []*inverse.SourceEstimate{line(0, 1, 40), line(0.9, 0.5, 5)}, []float64{40}},
+		{"just beyond both depths", []*inverse.SourceEstimate{line(0, 1, 40), line(1.05, 0.8, 5)}, []float64{40, 5}},
+		{"the weaker deeper", []*inverse.SourceEstimate{line(0, 0.5, 40), line(0.9, 1, -5)}, []float64{40}},
 	} {
 		t.Run(c.name, func(t *testing.T) {
 			got := closeLines(p, c.lines)
