@@ -170,3 +170,21 @@ func BenchmarkJacobiSVD(b *testing.B) {
 		})
 	}
 }
+
+// BenchmarkHouseQR times the QR of the LM step's matrix [J D^-1 | r] for one line
+// over nine traverses (1215 x 5) and two lines over ten (1500 x 9).
+func BenchmarkHouseQR(b *testing.B) {
+	for _, sz := range [][2]int{{1215, 5}, {1500, 9}} {
+		m, n := sz[0], sz[1]
+		b.Run(fmt.Sprintf("%dx%d", m, n), func(b *testing.B) {
+			rng := rand.New(rand.NewPCG(7, uint64(n)))
+			_, a := testMatrix(rng, m, n, 2)
+			w := make([]float64, m*n)
+			tau := make([]float64, n)
+			for b.Loop() {
+				copy(w, a)
+				houseQR(w, m, n, tau)
+			}
+		})
+	}
+}

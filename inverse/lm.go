@@ -433,7 +433,6 @@ func project(x, lower, upper []float64) {
 	}
 }
 
-
 func sumSq(v []float64) float64 {
 	return floats.Dot(v, v)
 }
