@@ -71,3 +71,102 @@ end:
 	ADDSD    X0, X9
 	MOVSD    X9, xz+80(FP)
 	RET
+
+// func dotQuad(x, y0, y1, y2, y3 []float64) (s0, s1, s2, s3 float64)
+//
+// Four inner products sharing x, each summed exactly as DotUnitary sums one (see
+// dotPair): eight addition chains, x loaded once.
+TEXT ·dotQuad(SB), NOSPLIT, $0-152
+	MOVQ  x_base+0(FP), R8
+	MOVQ  x_len+8(FP), DI
+	MOVQ  y0_base+24(FP), R9
+	MOVQ  y1_base+48(FP), R10
+	MOVQ  y2_base+72(FP), R11
+	MOVQ  y3_base+96(FP), R12
+	XORPS X8, X8
+	XORPS X9, X9
+	XORPS X10, X10
+	XORPS X11, X11
+	XORPS X12, X12
+	XORPS X13, X13
+	XORPS X14, X14
+	XORPS X15, X15
+	MOVQ  $0, SI
+	SUBQ  $4, DI
+	JL    qtail
+
+qloop:
+	MOVUPD 0(R8)(SI*8), X0
+	MOVUPD 16(R8)(SI*8), X1
+	MOVUPD 0(R9)(SI*8), X2
+	MOVUPD 16(R9)(SI*8), X3
+	MOVUPD 0(R10)(SI*8), X4
+	MOVUPD 16(R10)(SI*8), X5
+	MULPD  X0, X2
+	MULPD  X1, X3
+	MULPD  X0, X4
+	MULPD  X1, X5
+	ADDPD  X2, X8
+	ADDPD  X3, X9
+	ADDPD  X4, X10
+	ADDPD  X5, X11
+	MOVUPD 0(R11)(SI*8), X2
+	MOVUPD 16(R11)(SI*8), X3
+	MOVUPD 0(R12)(SI*8), X4
+	MOVUPD 16(R12)(SI*8), X5
+	MULPD  X0, X2
+	MULPD  X1, X3
+	MULPD  X0, X4
+	MULPD  X1, X5
+	ADDPD  X2, X12
+	ADDPD  X3, X13
+	ADDPD  X4, X14
+	ADDPD  X5, X15
+	ADDQ   $4, SI
+	SUBQ   $4, DI
+	JGE    qloop
+
+qtail:
+	ADDQ $4, DI
+	JLE  qend
+
+qone:
+	MOVSD 0(R8)(SI*8), X0
+	MOVSD 0(R9)(SI*8), X2
+	MOVSD 0(R10)(SI*8), X4
+	MULSD X0, X2
+	MULSD X0, X4
+	ADDSD X2, X8
+	ADDSD X4, X10
+	MOVSD 0(R11)(SI*8), X2
+	MOVSD 0(R12)(SI*8), X4
+	MULSD X0, X2
+	MULSD X0, X4
+	ADDSD X2, X12
+	ADDSD X4, X14
+	ADDQ  $1, SI
+	SUBQ  $1, DI
+	JNZ   qone
+
+qend:
+	ADDPD    X9, X8
+	MOVSD    X8, X0
+	UNPCKHPD X8, X8
+	ADDSD    X0, X8
+	MOVSD    X8, s0+120(FP)
+	ADDPD    X11, X10
+	MOVSD    X10, X0
+	UNPCKHPD X10, X10
+	ADDSD    X0, X10
+	MOVSD    X10, s1+128(FP)
+	ADDPD    X13, X12
+	MOVSD    X12, X0
+	UNPCKHPD X12, X12
+	ADDSD    X0, X12
+	MOVSD    X12, s2+136(FP)
+	ADDPD    X15, X14
+	MOVSD    X14, X0
+	UNPCKHPD X14, X14
+	ADDSD    X0, X14
+	MOVSD    X14, s3+144(FP)
+	RET

@@ -9,3 +9,10 @@ import "gonum.org/v1/gonum/floats"
 func dotPair(x, y, z []float64) (xy, xz float64) {
 	return floats.Dot(x, y[:len(x)]), floats.Dot(x, z[:len(x)])
 }
+
+// dotQuad returns floats.Dot(x, y0) ... floats.Dot(x, y3); each y must be at least as
+// long as x.
+func dotQuad(x, y0, y1, y2, y3 []float64) (s0, s1, s2, s3 float64) {
+	n := len(x)
+	return floats.Dot(x, y0[:n]), floats.Dot(x, y1[:n]), floats.Dot(x, y2[:n]), floats.Dot(x, y3[:n])
+}
