@@ -31,6 +31,11 @@ type Fit struct {
 	Settings *inverse.Settings
 
 	object *route.Object // the magnetised object found by checkDipoles
+	// lineObject is a magnetised object found by checkTrackDipoles beside
+	// the further conductor Result.Sources[objectLine] (Result then holds
+	// the refitted conductors and the object).
+	lineObject *route.Object
+	objectLine int
 }
 
 // BuildSettings tunes Build. A nil *BuildSettings or a zero field takes the
@@ -84,7 +89,10 @@ type BuildSettings struct {
 // their offset from the strongest conductor into further conductors
 // (tracks.go); each seen in at least TrackMinStations groups gets its own
 // route analysis with the same settings, recorded in Document.Conductors,
-// and its findings join Document.Findings marked with its number.
+// and its findings join Document.Findings marked with its number. Groups
+// the route or a track reports as anomalous are searched for a magnetised
+// object (dipole.go); one found beside a further conductor is reported on
+// that conductor's track.
 //
 // Signal.Mode is set to AC when the problems carry phasors, DC otherwise,
 // keeping head's frequency and window. Build returns an error when fits is
@@ -198,6 +206,17 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 	if len(stations) >= 2 {
 		if tracks, err = buildTracks(fits, r, rs, bs.TrackMinStations); err != nil {
 			return nil, err
+		}
+		// A current anomaly on a further conductor may be a magnetised
+		// object beside it (dipole.go): refit those groups and follow the
+		// conductors again.
+		if checkTrackDipoles(fits, r, tracks) {
+			if r, err = analyse(); err != nil {
+				return nil, err
+			}
+			if tracks, err = buildTracks(fits, r, rs, bs.TrackMinStations); err != nil {
+				return nil, err
+			}
 		}
 		// d.Groups are still in the order of fits here.
 		for _, t := range tracks {

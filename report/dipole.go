@@ -77,6 +77,16 @@ import (
 // of Newton's. The search with the larger gain in the criterion is kept:
 // two conductors truly that close fit worse merged. Without a close pair
 // only the first search runs, as before.
+//
+// An object beside a weaker conductor may leave the strongest one, which
+// the route follows, untouched and show only on that conductor's track
+// (tracks.go) as a current anomaly. Build then searches those groups too
+// (checkTrackDipoles) and judges the object on the track: the refitted
+// conductor's current against its track neighbours, the strongest one's
+// against the route's, the object off both conductors, its distance
+// measured from the conductor whose track found it. The object is
+// reported on that track; the group keeps its place on the route with the
+// refitted conductors.
 const (
 	weakShare     = 0.05
 	dipoleMargin  = 2.0 // m
@@ -260,28 +270,132 @@ func checkDipoles(fits []Fit, r *route.Route) bool {
 		if ds == nil || ds.gain <= dipoleBIC {
 			continue
 		}
-		cur, sig := neighbours(r, f.Key, cand)
-		if len(cur) == 0 {
-			continue
-		}
-		var mean, v float64
-		for k := range cur {
-			mean += cur[k] / float64(len(cur))
-			v += sig[k] * sig[k] / float64(len(cur)*len(cur))
-		}
-		if len(cur) == 2 {
-			v += (cur[0] - cur[1]) * (cur[0] - cur[1]) / 4
-		}
-		// The route's between-station scatter, in the refitted current
-		// and in the neighbours' mean.
-		v += r.ModelScatter * r.ModelScatter * (1 + 1/float64(len(cur)))
-		if math.Abs(math.Abs(ds.current)-mean) > dipoleAgreeK*math.Hypot(ds.currentSigma, math.Sqrt(v)) {
+		if !agrees(r, f.Key, cand, ds.current, ds.currentSigma) {
 			continue
 		}
 		if ds.obj.Distance <= dipoleOffLine*ds.obj.Depth {
 			continue
 		}
 		f.Dipole, f.object, f.Result = true, ds.obj, ds.result
+		changed = true
+	}
+	return changed
+}
+
+// agrees reports whether a refitted current (magnitude) of the given sigma
+// at the station with the given key agrees with the nearest usable
+// stations of r either side not in skip: within dipoleAgreeK standard
+// deviations of their mean, their half-difference and the route's
+// between-station scatter counted. False when there is no such station.
+func agrees(r *route.Route, key string, skip map[string]bool, current, sigma float64) bool {
+	cur, sig := neighbours(r, key, skip)
+	if len(cur) == 0 {
+		return false
+	}
+	var mean, v float64
+	for k := range cur {
+		mean += cur[k] / float64(len(cur))
+		v += sig[k] * sig[k] / float64(len(cur)*len(cur))
+	}
+	if len(cur) == 2 {
+		v += (cur[0] - cur[1]) * (cur[0] - cur[1]) / 4
+	}
+	// The route's between-station scatter, in the refitted current and in
+	// the neighbours' mean.
+	v += r.ModelScatter * r.ModelScatter * (1 + 1/float64(len(cur)))
+	return math.Abs(math.Abs(current)-mean) <= dipoleAgreeK*math.Hypot(sigma, math.Sqrt(v))
+}
+
+// checkTrackDipoles searches the groups that a further conductor's track
+// reports as a current anomaly (and the primary route r did not take for
+// an object) for a magnetised object beside that conductor, and marks
+// those the rules of checkDipoles accept, judged on the track: the gain in
+// the criterion over dipoleBIC, the refitted conductor's current in
+// agreement with the track's neighbours (and the strongest conductor's
+// with the primary route's), the object farther from that conductor than
+// dipoleOffLine times its depth. An accepted group keeps its refitted
+// conductors and the object (Fit.Result), and the object is reported on
+// the conductor's track, its distance measured from that conductor
+// (trackStation). It reports whether any group changed.
+func checkTrackDipoles(fits []Fit, r *route.Route, tracks []builtTrack) bool {
+	type job struct {
+		fit   int
+		track *builtTrack
+		src   inverse.SourceEstimate // the conductor as first fitted
+		ds    *dipoleSearch
+	}
+	var jobs []*job
+	seen := map[int]bool{}
+	for ti := range tracks {
+		t := &tracks[ti]
+		for _, f := range t.route.Findings {
+			if f.Kind != route.KindCurrentAnomaly || len(f.Keys) != 3 {
+				continue
+			}
+			for _, m := range t.members {
+				fi := &fits[m.fit]
+				if fi.Key != f.Keys[1] || seen[m.fit] || fi.Dipole || fi.Result == nil {
+					continue
+				}
+				seen[m.fit] = true
+				jobs = append(jobs, &job{fit: m.fit, track: t, src: fi.Result.Sources[m.source]})
+			}
+		}
+	}
+	if len(jobs) == 0 {
+		return false
+	}
+	var wg sync.WaitGroup
+	sem := make(chan struct{}, runtime.GOMAXPROCS(0))
+	for _, j := range jobs {
+		wg.Add(1)
+		sem <- struct{}{}
+		go func() {
+			defer func() { <-sem; wg.Done() }()
+			j.ds = searchDipole(&fits[j.fit])
+		}()
+	}
+	wg.Wait()
+	primarySkip := dipoleCandidates(r)
+	changed := false
+	for _, j := range jobs {
+		f, ds := &fits[j.fit], j.ds
+		if ds == nil || ds.gain <= dipoleBIC {
+			continue
+		}
+		// The refitted conductor nearest the track's, in the cross
+		// section; not the strongest, which the primary route follows.
+		at, best := -1, math.Inf(1)
+		for k, s := range ds.result.Sources {
+			if k == 0 || s.Kind == KindDipole {
+				continue
+			}
+			if d := math.Hypot(offLine(&s, j.src.Point), s.Depth-j.src.Depth); d < best {
+				at, best = k, d
+			}
+		}
+		if at < 0 || best > trackGate(j.src.Depth, ds.result.Sources[at].Depth) {
+			continue
+		}
+		c := &ds.result.Sources[at]
+		skip := map[string]bool{}
+		for _, tf := range j.track.route.Findings {
+			if tf.Kind == route.KindCurrentAnomaly && len(tf.Keys) == 3 {
+				skip[tf.Keys[1]] = true
+			}
+		}
+		if !agrees(j.track.route, f.Key, skip, c.Current, c.CurrentSigma) ||
+			!agrees(r, f.Key, primarySkip, ds.current, ds.currentSigma) {
+			continue
+		}
+		// Off both conductors: on either it could be a bend or a change
+		// of depth of that conductor.
+		obj := *ds.obj
+		obj.Distance = offLine(c, obj.Point)
+		if obj.Distance <= dipoleOffLine*obj.Depth || ds.obj.Distance <= dipoleOffLine*obj.Depth {
+			continue
+		}
+		f.Result, f.lineObject, f.objectLine = ds.result, &obj, at
 		changed = true
 	}
 	return changed

@@ -65,7 +65,9 @@ import (
 // along its own stations from its first one, as route.Build measures it.
 // Poor fits are a property of a group's fit, shared by all its conductors:
 // they are reported once, on the primary route, and a track's poor-fit
-// findings for the same groups are not repeated.
+// findings for the same groups are not repeated. A magnetised object found
+// beside a further conductor (checkTrackDipoles, dipole.go) is reported on
+// that conductor's track, whose station there it marks as an object.
 
 // trackSource is one line source offered for association: the fit and
 // source it comes from and where it lies across the primary conductor.
@@ -288,6 +290,11 @@ func trackStation(f *Fit, j int, primary *route.Placed) route.Station {
 	st.Phase, st.PhaseSigma = s.Phase, s.PhaseSigma
 	st.Depth, st.DepthSigma = s.Depth, s.DepthSigma
 	st.Dipole, st.Object = false, nil
+	if f.lineObject != nil && j == f.objectLine {
+		// The object found beside this conductor (checkTrackDipoles):
+		// reported on its track and left out of its current and cover.
+		st.Dipole, st.Object = true, f.lineObject
+	}
 	return st
 }
 
