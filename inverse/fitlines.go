@@ -267,7 +267,7 @@ func (f *fitter) seedsFromData(d []float64) []seed {
 	if !holdAz {
 		azs = f.sv.azimuthCandidates(a)
 	}
-	var out []seed
+	out := make([]seed, 0, 3*len(azs))
 	for i, az := range azs {
 		sd := f.sv.seedFor(a, az)
 		depth := f.sv.zmean - sd.z
@@ -300,8 +300,12 @@ func (f *fitter) fitK(k int, prev *candidate) (*candidate, error) {
 	holdAz, holdDip, _, dip := f.holds()
 	var starts []start
 	if k == 1 || prev == nil {
-		for _, sd := range f.seedsFromData(f.sv.y) {
-			starts = append(starts, start{lines: []lineGeom{f.sv.geomFrom(sd, holdAz, holdDip, dip, f.set.MinDepth)}})
+		seeds := f.seedsFromData(f.sv.y)
+		starts = make([]start, len(seeds))
+		lines := make([]lineGeom, len(seeds)) // one line per start
+		for i, sd := range seeds {
+			lines[i] = f.sv.geomFrom(sd, holdAz, holdDip, dip, f.set.MinDepth)
+			starts[i] = start{lines: lines[i : i+1 : i+1]}
 		}
 	} else {
 		base := append([]lineGeom(nil), prev.sp.geom...)
@@ -359,7 +363,7 @@ func (f *fitter) bestOf(starts []start, quick bool) (*candidate, error) {
 		rss float64
 		st  start
 	}
-	var rs []ranked
+	rs := make([]ranked, 0, len(starts))
 	var firstErr error
 	// The starts are screened one after another with one set of work buffers (handed on
 	// from start to start); the few that are polished evaluate again with their own.

@@ -97,7 +97,8 @@ func (f *fitter) summarise(c *candidate) (*summary, error) {
 	}
 	np := sp.nparams()
 	nl, q, nr := len(sp.geom), sp.q, sp.nrhs
-	su.v = append([]float64(nil), c.x...)
+	su.v = make([]float64, 0, len(c.x)+q*nr)
+	su.v = append(su.v, c.x...)
 	for kk := range nr {
 		for j := range q {
 			su.v = append(su.v, sp.coef[j*nr+kk])
@@ -117,7 +118,7 @@ func (f *fitter) summarise(c *candidate) (*summary, error) {
 	// One set of work buffers for the repeated evaluations of the derived quantities.
 	dw := &deriveWork{geom: make([]lineGeom, nl), cur: make([]complex128, nl)}
 	nqAll := nl * nQuantities
-	qbuf := make([]float64, 3*nqAll+nqAll*len(su.v)+len(su.v))
+	qbuf := sp.scr.zeros(3*nqAll + nqAll*len(su.v) + len(su.v))
 	base, up, dn := qbuf[:nqAll], qbuf[nqAll:2*nqAll], qbuf[2*nqAll:3*nqAll]
 	derive := func(v, out []float64) []float64 { return deriveQuantities(sp, f.sv, su.zref, flip, v, dw, out) }
 	derive(su.v, base)

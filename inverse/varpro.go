@@ -163,9 +163,14 @@ func (sp *separable) nparams() int {
 }
 
 // pack returns the free geometry parameters and their bounds.
-func (sp *separable) pack() (x, lo, hi []float64) {
+func (sp *separable) pack() (x, lo, hi []float64) { return sp.packInto(nil) }
+
+// packInto is pack with the three vectors in buf when it holds them (3 nparams).
+func (sp *separable) packInto(buf []float64) (x, lo, hi []float64) {
 	n := sp.nparams()
-	buf := make([]float64, 3*n)
+	if len(buf) < 3*n {
+		buf = make([]float64, 3*n)
+	}
 	x, lo, hi = buf[:0:n], buf[n:n:2*n], buf[2*n:2*n:3*n]
 	for _, g := range sp.geom {
 		x = append(x, g.s, g.z)
@@ -576,7 +581,8 @@ func (sp *separable) evaluate(x []float64) error {
 			}
 		}
 	}
-	sp.at = append(sp.at[:0], x...)
+	sp.at = sp.scr.grow(sp.at, len(x))
+	copy(sp.at, x)
 	sp.ok = true
 	return nil
 }
@@ -998,7 +1004,8 @@ func equal(a, b []float64) bool {
 
 // atBound reports whether any geometry parameter of x lies on its bound.
 func (sp *separable) atBound(x []float64) bool {
-	_, lo, hi := sp.pack()
+	var buf [96]float64
+	_, lo, hi := sp.packInto(buf[:])
 	for i, v := range x {
 		if v <= lo[i] || v >= hi[i] {
 			return true
