@@ -75,8 +75,14 @@ import (
 // definite, so it takes up to splitRounds rounds of descent, then
 // Levenberg-Marquardt steps on the joint fit (jointFit.settle) in place
 // of Newton's. The search with the larger gain in the criterion is kept:
-// two conductors truly that close fit worse merged. Without a close pair
-// only the first search runs, as before.
+// two conductors truly that close fit worse merged. When the search kept
+// still leaves the readings poorly explained (poorSearch: no gain over
+// dipoleBIC or, the noise known, a reduced chi-square over
+// dipolePoorChi2), the same is tried from each weak line the fit had (they
+// often sit at the object): a search whose held conductors were too far
+// off places the object where it makes up for them instead. Without a
+// close pair and with a search that explains the readings only the first
+// search runs, as before.
 //
 // An object beside a weaker conductor may leave the strongest one, which
 // the route follows, untouched and show only on that conductor's track
@@ -628,7 +634,9 @@ func without(p *inverse.Problem, r *inverse.Result, j int, pos [3]float64) (*inv
 // refit then allowed no more conductors than that, and keeps the search
 // with the larger gain in the information criterion: the pair may be an
 // object's field absorbed, which the first search keeps, or two conductors
-// truly that close, which the second cannot fit as well.
+// truly that close, which the second cannot fit as well. When the search
+// kept explains the readings poorly (poorSearch) it searches again from
+// each weak line of the fit, likewise.
 func searchDipole(f *Fit) *dipoleSearch {
 	res := f.Result
 	strongest := 0.0
@@ -651,13 +659,43 @@ func searchDipole(f *Fit) *dipoleSearch {
 	if best == nil {
 		return nil
 	}
-	if merged := closeLines(f.Problem, lines); len(merged) < len(lines) {
+	merged := closeLines(f.Problem, lines)
+	if len(merged) < len(lines) {
 		start := best.obj.Point
 		if ds := searchFrom(f, merged, &start); ds != nil && ds.gain > best.gain {
 			best = ds
 		}
 	}
+	if poorSearch(f.Problem, best) {
+		// The weak lines the fit left out often sit at the object.
+		for k := range res.Sources {
+			s := &res.Sources[k]
+			if math.Abs(s.Current) >= weakShare*strongest {
+				continue
+			}
+			start := s.Point
+			if ds := searchFrom(f, merged, &start); ds != nil && ds.gain > best.gain {
+				best = ds
+			}
+		}
+	}
 	return best
+}
+
+// dipolePoorChi2 is the reduced chi-square above which a search leaves the
+// readings poorly explained: the route's default limit for a poor fit
+// (route.Settings.MaxReducedChi2).
+const dipolePoorChi2 = 4
+
+// poorSearch reports whether ds did not explain p's readings: a gain in
+// the criterion not over dipoleBIC or, when the noise is known, a reduced
+// chi-square with the object over dipolePoorChi2.
+func poorSearch(p *inverse.Problem, ds *dipoleSearch) bool {
+	if ds.gain <= dipoleBIC {
+		return true
+	}
+	r := ds.result
+	return p.Sigma > 0 && r.DOF > 0 && r.Chi2/float64(r.DOF) > dipolePoorChi2
 }
 
 // closeLines returns lines (the strongest first after it) without each

@@ -82,6 +82,11 @@ func splitFits(t testing.TB, obj [3]float64, moment [3]float64) []Fit {
 // fits split cable 2 too (a like pair, or a shallow weak line beside it),
 // and the case with twice the moment at north 4.5 m, whose fit does not
 // split. Before the merged search the four split cases found no object.
+// Two more need the weak lines as starts (poorSearch): at 0.4 times the
+// moment the pair's weaker member is under weakShare and left out from the
+// start, and 0.5 m from cable 2 with four times the moment the first
+// search places the object where it makes up for a misplaced cable 2;
+// without those starts neither reports an object.
 func TestBuildFindsObjectBesideSplitConductor(t *testing.T) {
 	scaled := func(k float64) [3]float64 {
 		return [3]float64{k * splitMoment[0], k * splitMoment[1], k * splitMoment[2]}
@@ -97,6 +102,11 @@ func TestBuildFindsObjectBesideSplitConductor(t *testing.T) {
 		{"1 m from cable 2, like pair", [3]float64{30.4, 3.5, -0.8}, splitMoment, true},
 		{"1 m from cable 2, twice the moment", [3]float64{30.4, 3.5, -0.8}, scaled(2), true},
 		{"1 m from cable 2, four times the moment", [3]float64{30.4, 3.5, -0.8}, scaled(4), true},
+		// The weak member of the pair, under weakShare of cable 1, is
+		// left out from the start; the search then needs the weak lines
+		// as starts (poorSearch).
+		{"weak member of the pair", splitObject, scaled(0.4), true},
+		{"0.5 m from cable 2, four times the moment", [3]float64{30.4, 3, -0.8}, scaled(4), false},
 	} {
 		t.Run(c.name, func(t *testing.T) {
 			fits := splitFits(t, c.obj, c.moment)
