@@ -126,7 +126,12 @@
 // (house.go): Householder QR in the LAPACK convention (Golub & Van Loan, Matrix
 // Computations, 4th ed., 5.1) and the singular value decomposition of the small
 // triangular factors by one-sided Jacobi rotations (Demmel & Veselic, SIAM J. Matrix
-// Anal. Appl. 13(4):1204-1245, 1992), both checked against gonum in the tests.
+// Anal. Appl. 13(4):1204-1245, 1992), both checked against gonum in the tests. A
+// reflector's inner products with two or four columns are formed in one pass (dotPair,
+// dotQuad: amd64 assembly that sums each product exactly as gonum's floats.Dot does, so
+// the numbers are the same bit for bit; elsewhere they are floats.Dot calls). The work
+// buffers of a FitLines call are lent by a pooled scratch and reused by the next call
+// (scratch.go); the Result holds none of them.
 //
 // # Starting values and the number of conductors
 //
