@@ -288,13 +288,16 @@ func TestServiceEndToEnd(t *testing.T) {
 	if body := get("/api/v1/assets", 200); !strings.Contains(body, `"worker": "w1"`) {
 		t.Errorf("assets: %s", body)
 	}
+	// The latest-estimate store is written after the estimate's message
+	// (worker.go), so the tenth estimate may be listed a moment before it
+	// is the latest: wait for it.
 	var latest Estimate
-	if err := json.Unmarshal([]byte(get("/api/v1/assets/fenwick-lane/latest", 200)), &latest); err != nil {
-		t.Fatal(err)
-	}
-	if latest.End != t0+5 {
-		t.Errorf("latest window ends %v, want %v", latest.End, t0+5)
-	}
+	waitFor(t, 10*time.Second, "the latest estimate to be the tenth", func() bool {
+		if err := json.Unmarshal([]byte(get("/api/v1/assets/fenwick-lane/latest", 200)), &latest); err != nil {
+			t.Fatal(err)
+		}
+		return latest.End == t0+5
+	})
 	get("/api/v1/assets/no-such/latest", 404)
 	var hist []Estimate
 	json.Unmarshal([]byte(get(fmt.Sprintf("/api/v1/assets/fenwick-lane/history?from=%.1f&to=%.1f", t0+1, t0+2), 200)), &hist)
