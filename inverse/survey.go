@@ -82,15 +82,19 @@ func newSurveyIn(p *Problem, scr *scratch) *survey {
 		sv.nrhs = 2
 	}
 	sv.y = scr.take(3 * n * sv.nrhs)
-	for i := range n {
-		for j := range 3 {
-			if p.isAC() {
+	if p.isAC() {
+		for i := range n {
+			for j := range 3 {
 				v := p.Phasors[i][j]
 				sv.y[(3*i+j)*2] = real(v)
 				sv.y[(3*i+j)*2+1] = imag(v)
-			} else {
-				sv.y[3*i+j] = p.Fields[i][j]
 			}
+		}
+	} else {
+		y := sv.y
+		for _, f := range p.Fields[:n] {
+			y[0], y[1], y[2] = f[0], f[1], f[2]
+			y = y[3:]
 		}
 	}
 	for _, r := range p.Points {
