@@ -336,10 +336,11 @@ func (sp *separable) fillRaw(phi []float64, rs, cs int, pos []int, pts [][3]floa
 func lineColumn(col []float64, u, p0 [3]float64, pts [][3]float64) {
 	u0, u1, u2 := u[0], u[1], u[2]
 	p00, p01, p02 := p0[0], p0[1], p0[2]
-	for _, r := range pts {
+	for i := range pts {
 		if len(col) < 3 {
 			break
 		}
+		r := &pts[i]
 		d0, d1, d2 := r[0]-p00, r[1]-p01, r[2]-p02
 		du := d0*u0 + d1*u1 + d2*u2
 		r0, r1, r2 := d0-du*u0, d1-du*u1, d2-du*u2
@@ -666,7 +667,8 @@ func (sp *separable) dPhiCAt(dst []float64, np int, pts [][3]float64) {
 			p += g.nfree()
 			continue
 		}
-		for i, r := range pts {
+		for i := range pts {
+			r := &pts[i]
 			// B = K (u x d)/q, d = r - p0, q = |d|^2 - (d.u)^2, rho = d - (d.u) u.
 			// dB/dp0 . v = -K (u x v / q - 2 (rho.v)(u x d)/q^2)
 			// dB/du . w =  K (w x d / q + 2 (d.u)(d.w)(u x d)/q^2)
@@ -748,7 +750,8 @@ func (sp *separable) dLineFast(out [][2][]float64, dirs, uxv [][3]float64, isDir
 		np0++
 	}
 	kc := c * nT * k2pi
-	for i, r := range pts {
+	for i := range pts {
+		r := &pts[i]
 		d0, d1, d2 := r[0]-p0[0], r[1]-p0[1], r[2]-p0[2]
 		du := d0*u[0] + d1*u[1] + d2*u[2]
 		r0, r1, r2 := d0-du*u[0], d1-du*u[1], d2-du*u[2]
@@ -799,7 +802,8 @@ func (sp *separable) dLineLevel(out [][2][]float64, dirs, uxv [][3]float64, u, p
 	cs0, cs1, cs2 := uxv[0][0], uxv[0][1], uxv[0][2]
 	cz0, cz1, cz2 := uxv[1][0], uxv[1][1], uxv[1][2]
 	kc := c * nT * k2pi
-	for i, r := range pts {
+	for i := range pts {
+		r := &pts[i]
 		d0, d1, d2 := r[0]-p00, r[1]-p01, r[2]-p02
 		du := d0*u0 + d1*u1 + d2*u2
 		r0, r1, r2 := d0-du*u0, d1-du*u1, d2-du*u2
