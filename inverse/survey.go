@@ -258,8 +258,8 @@ func (sv *survey) azimuthCandidates(a [][3]float64) []float64 {
 	amax := norm(a[ip])
 	mag := sv.scr.take(len(a))
 	var w, ce, cn float64
-	for i, v := range a {
-		m := norm(v)
+	for i := range a {
+		m := norm(a[i])
 		mag[i] = m
 		if m >= amax/2 {
 			w += m
@@ -320,10 +320,11 @@ func (sv *survey) seedFor(a [][3]float64, az float64) seed {
 	nh := [3]float64{math.Cos(az), -math.Sin(az), 0} // horizontal, across the line
 	// The magnitude of the component across the line at every point, kept for the
 	// second pass.
-	across := grow(sv.across, len(a))
+	across := sv.scr.grow(sv.across, len(a))
 	sv.across = across
 	ip, bp := 0, 0.0
-	for i, v := range a {
+	for i := range a {
+		v := &a[i]
 		c := math.Abs(v[0]*nh[0] + v[1]*nh[1] + v[2]*nh[2])
 		across[i] = c
 		if c > bp {
@@ -336,7 +337,7 @@ func (sv *survey) seedFor(a [][3]float64, az float64) seed {
 	pts := sv.pts[:len(across)]
 	for i, c := range across {
 		if c <= bp/2 {
-			r := pts[i]
+			r := &pts[i]
 			d := r[0]*nh[0] + r[1]*nh[1] + r[2]*nh[2] - pn
 			side := 0
 			if d < 0 {
