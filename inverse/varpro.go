@@ -973,14 +973,22 @@ func (sp *separable) fullResiduals(x []float64) ([]float64, error) {
 				continue
 			}
 			cc := sp.coef[c*nr+k]
+			if nr == 1 {
+				// res + (-cc) v is res - v cc exactly.
+				floats.AddScaled(res[:m], -cc, phi[p*m:(p+1)*m])
+				continue
+			}
 			for row, v := range phi[p*m : (p+1)*m] {
 				res[row*nr+k] -= v * cc
 			}
 		}
 		if sp.uniform() {
 			bc := sp.bgCol()
-			for row := range m {
-				res[row*nr+k] -= sp.coef[(bc+row%3)*nr+k]
+			b := [3]float64{sp.coef[bc*nr+k], sp.coef[(bc+1)*nr+k], sp.coef[(bc+2)*nr+k]}
+			for row := 0; row+2 < m; row += 3 {
+				res[row*nr+k] -= b[0]
+				res[(row+1)*nr+k] -= b[1]
+				res[(row+2)*nr+k] -= b[2]
 			}
 		}
 	}
