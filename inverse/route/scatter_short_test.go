@@ -3,6 +3,7 @@ package route
 import (
 	"math"
 	"math/rand/v2"
+	"strings"
 	"testing"
 
 	"gonum.org/v1/gonum/stat/distuv"
@@ -108,6 +109,41 @@ func TestShortWidening(t *testing.T) {
 	} {
 		if got := shortWidening(tc.nu, k); math.Abs(got-tc.want) > 1e-6*tc.want {
 			t.Errorf("nu %g: widening %.9g, want %.9g", tc.nu, got, tc.want)
+		}
+	}
+}
+
+// A step on a route of six usable stations or fewer, where no scatter can
+// be estimated, says that its sigma may be optimistic; on a longer route
+// with no scatter found it does not.
+func TestTooShortForScatterNoted(t *testing.T) {
+	for _, tc := range []struct {
+		n    int
+		note bool
+	}{{5, true}, {7, true}, {8, false}} {
+		// n stations, one of them a dipole (not usable) when n is 7: six usable.
+		st := make([]Station, tc.n)
+		for i := range st {
+			cur := 40.0
+			if i >= tc.n/2 {
+				cur = 31
+			}
+			st[i] = Station{Key: key(i), Point: [3]float64{7.5 * float64(i), 0, -1.2}, Dir: [3]float64{1, 0, 0},
+				Current: cur + 0.01*float64(i%2), CurrentSigma: 0.05, Depth: 1.2, DepthSigma: 0.01, OK: true}
+		}
+		if tc.n == 7 {
+			st[1].Dipole = true
+		}
+		r, err := Build(st, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		f := findings(r, KindCurrentStep)
+		if len(f) != 1 {
+			t.Fatalf("%d stations: %d steps, want 1: %+v", tc.n, len(f), r.Findings)
+		}
+		if got := strings.Contains(f[0].Message, "too few to estimate scatter"); got != tc.note {
+			t.Errorf("%d stations: note %v, want %v: %s", tc.n, got, tc.note, f[0].Message)
 		}
 	}
 }

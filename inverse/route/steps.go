@@ -29,7 +29,16 @@ func steps(ps []Placed, set *Settings, tau, widen float64) (out []Finding) {
 		}
 	}
 	k := set.stepK()
+	n0 := len(u)
 	defer func() {
+		if tau <= 0 && n0 >= 2 && n0-1 < minShortIntervals {
+			// Too few stations to tell model error from the fits' noise
+			// (scatter.go): say so rather than let the sigmas pass for
+			// complete.
+			for i := range out {
+				out[i].Message += fmt.Sprintf("; only %d usable stations, too few to estimate scatter between stations beyond the fits' sigmas, so the sigma may be optimistic", n0)
+			}
+		}
 		if tau <= 0 {
 			return
 		}
