@@ -137,19 +137,7 @@ func TestBuildFindsObjectBesideSplitConductor(t *testing.T) {
 				if len(f.Groups) != 1 || f.Groups[0] != "H4" {
 					t.Errorf("object found at %v, want H4", f.Groups)
 				}
-				want := map[string]float64{"east": obj[0], "north": obj[1], "depth": -obj[2],
-					"moment": math.Sqrt(m[0]*m[0] + m[1]*m[1] + m[2]*m[2])}
-				for _, v := range f.Values {
-					if w, ok := want[v.Name]; ok {
-						delete(want, v.Name)
-						if v.Sigma <= 0 || math.Abs(v.Value-w) > 4*v.Sigma {
-							t.Errorf("object %s %.4f ± %.4f, true %.4f", v.Name, v.Value, v.Sigma, w)
-						}
-					}
-				}
-				if len(want) != 0 {
-					t.Errorf("finding lacks %v", want)
-				}
+				checkObject(t, f, obj, m)
 			}
 			if found != 1 {
 				t.Fatalf("%d magnetised objects reported, want 1", found)

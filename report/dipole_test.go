@@ -107,22 +107,7 @@ func TestBuildFindsMagnetisedObject(t *testing.T) {
 		if len(f.Groups) != 1 || f.Groups[0] != "F4" {
 			t.Errorf("object found at %v, want F4", f.Groups)
 		}
-		// Position and moment within 4 of their reported sigmas (which
-		// the Monte Carlo of dipole_coverage_test.go finds calibrated),
-		// and the depth below the sensors' mean height (0 m).
-		want := map[string]float64{"east": obj[0], "north": obj[1], "depth": -obj[2],
-			"moment": math.Sqrt(moment[0]*moment[0] + moment[1]*moment[1] + moment[2]*moment[2])}
-		for _, v := range f.Values {
-			if w, ok := want[v.Name]; ok {
-				delete(want, v.Name)
-				if v.Sigma <= 0 || math.Abs(v.Value-w) > 4*v.Sigma {
-					t.Errorf("object %s %.4f ± %.4f, true %.4f", v.Name, v.Value, v.Sigma, w)
-				}
-			}
-		}
-		if len(want) != 0 {
-			t.Errorf("finding lacks %v", want)
-		}
+		checkObject(t, f, obj, moment)
 	}
 	if found != 1 {
 		t.Fatalf("%d magnetised objects reported, want 1", found)
@@ -151,4 +136,29 @@ func BenchmarkBuildMagnetisedObject(b *testing.B) {
 			b.Fatal(err)
 		}
 	}
+}
+
+// checkObject checks a magnetised-object finding against the true position
+// obj (m ENU; sensors at height 0, so the depth is -obj[2]) and moment:
+// position, depth and moment magnitude within 4 of their reported sigmas
+// (which the Monte Carlo of dipole_coverage_test.go finds calibrated). It
+// returns the finding's values by name.
+func checkObject(t *testing.T, f Finding, obj, moment [3]float64) map[string]Value {
+	t.Helper()
+	want := map[string]float64{"east": obj[0], "north": obj[1], "depth": -obj[2],
+		"moment": math.Sqrt(moment[0]*moment[0] + moment[1]*moment[1] + moment[2]*moment[2])}
+	vals := map[string]Value{}
+	for _, v := range f.Values {
+		vals[v.Name] = v
+		if w, ok := want[v.Name]; ok {
+			delete(want, v.Name)
+			if v.Sigma <= 0 || math.Abs(v.Value-w) > 4*v.Sigma {
+				t.Errorf("object %s %.4f ± %.4f, true %.4f", v.Name, v.Value, v.Sigma, w)
+			}
+		}
+	}
+	if len(want) != 0 {
+		t.Errorf("finding lacks %v", want)
+	}
+	return vals
 }

@@ -40,21 +40,7 @@ func TestBuildFindsObjectBesideFurtherConductor(t *testing.T) {
 				if len(f.Groups) != 1 || f.Groups[0] != "H4" || f.Conductor != 2 {
 					t.Errorf("object found at %v on conductor %d, want H4 on conductor 2", f.Groups, f.Conductor)
 				}
-				want := map[string]float64{"east": obj[0], "north": obj[1], "depth": -obj[2],
-					"moment": math.Sqrt(moment[0]*moment[0] + moment[1]*moment[1] + moment[2]*moment[2])}
-				vals := map[string]Value{}
-				for _, v := range f.Values {
-					vals[v.Name] = v
-					if w, ok := want[v.Name]; ok {
-						delete(want, v.Name)
-						if v.Sigma <= 0 || math.Abs(v.Value-w) > 4*v.Sigma {
-							t.Errorf("object %s %.4f ± %.4f, true %.4f", v.Name, v.Value, v.Sigma, w)
-						}
-					}
-				}
-				if len(want) != 0 {
-					t.Errorf("finding lacks %v", want)
-				}
+				vals := checkObject(t, f, obj, moment)
 				dist, n := vals["distance from conductor"], vals["north"]
 				if w := north - splitCables[1].north; math.Abs(dist.Value-w) > 4*n.Sigma {
 					t.Errorf("distance from the conductor %.3f m, true %.3f m from cable 2 (north sigma %.3f m)", dist.Value, w, n.Sigma)
