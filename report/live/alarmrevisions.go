@@ -103,6 +103,7 @@ func (s *Service) latestAlarms(ctx context.Context, asset, subject string, from,
 	if err != nil || q == nil {
 		return []Alarm{}, err
 	}
+	defer q.close()
 	if top == 0 {
 		// Never restarted: one run of revision 0, every alarm kept.
 		run := []revisionRun{{rev: 0, lo: q.info.State.FirstSeq, hi: q.info.State.LastSeq + 1}}
@@ -121,6 +122,7 @@ func (s *Service) latestAlarms(ctx context.Context, asset, subject string, from,
 		}
 	}
 	est := &estimateRevisions{s: s, asset: asset}
+	defer est.close()
 	out := []Alarm{}
 	quota := 0
 	for {
@@ -200,6 +202,13 @@ type estimateRun struct {
 	revisionRun
 	at   uint64
 	done bool // the run ends before the last window asked
+}
+
+// close deletes the consumer of the estimate query, if it made one.
+func (e *estimateRevisions) close() {
+	if e.q != nil {
+		e.q.close()
+	}
 }
 
 // decide returns the alarms of one window (all its read alarms, sorted

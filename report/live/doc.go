@@ -142,10 +142,14 @@
 // History and Alarms do not scan the stored streams: a binary search over
 // stream sequences, each probe a server-side "next message on this subject
 // at or after this sequence" lookup, finds the first message of the
-// range, an ordered consumer reads from there, and reading stops at the
-// end of the range or the limit. A query reads about log2(stream length)
-// plus the number of results messages (uc_query_messages_read_total),
-// plus one lookup of the asset's newest estimate.
+// range, a consumer reads on from there, and reading stops at the end of
+// the range or the limit. A query reads about log2(stream length) plus
+// the number of results messages (uc_query_messages_read_total), plus
+// one lookup of the asset's newest estimate. It makes at most one broker
+// consumer per subject it reads: created at its first read of more than
+// one message, moved to each later read's start by a consumer reset,
+// and deleted before the query returns, also when it fails or its
+// client goes away (querycons.go).
 //
 // That search needs the messages in start order, which a restart breaks:
 // re-read windows are stored again after newer ones. What holds is that

@@ -51,8 +51,8 @@ func queryOpts(opts []QueryOption) queryOptions {
 // It does not read the asset's whole history: the start of the range is
 // found by a binary search over stream sequences (each probe is one
 // server-side "next message on the subject at or after this sequence"
-// lookup, so about log2(stream length) probes), an ordered consumer is
-// started at that sequence, and reading stops at the first estimate that
+// lookup, so about log2(stream length) probes), the query's consumer
+// reads on after that message, and reading stops at the first estimate that
 // starts at or after to, or at limit. This relies on the estimates of one
 // asset and read revision being stored in window order, which the
 // pipeline guarantees (one worker per asset, windows published in order,
@@ -171,6 +171,7 @@ func readRevisions[T any](s *Service, ctx context.Context, query, stream, subjec
 	if err != nil || q == nil {
 		return nil, err
 	}
+	defer q.close()
 	runs := []revisionRun{{rev: 0, lo: q.info.State.FirstSeq, hi: q.info.State.LastSeq + 1}}
 	if top > 0 {
 		if runs, err = q.revisionRuns(ctx); err != nil {
@@ -292,6 +293,7 @@ type rangeQuery struct {
 	subject string
 	query   string
 	reads   interface{ Inc() }
+	c       queryConsumer // see querycons.go
 }
 
 func (q *rangeQuery) fail(err error) error {
@@ -455,81 +457,52 @@ func (q *rangeQuery) resumeRun(ctx context.Context, run revisionRun, to float64,
 }
 
 // readFrom reads for readRun from the message first, before sequence end.
+// first came from a positioning lookup; the messages after it come from
+// the query's consumer (see querycons.go), fetched in growing batches,
+// never more than are pending, so that the messages read past the end
+// of the range stay few.
 func (q *rangeQuery) readFrom(ctx context.Context, first *jetstream.RawStreamMsg, end uint64, to float64, f func([]byte, uint64) bool) error {
 	if start, _ := startOf(first.Data); start >= to {
 		return nil
 	}
-	cons, err := q.s.stores.JS.OrderedConsumer(ctx, q.stream, jetstream.OrderedConsumerConfig{
-		FilterSubjects: []string{q.subject},
-		DeliverPolicy:  jetstream.DeliverByStartSequencePolicy,
-		OptStartSeq:    first.Sequence,
-		// The server forgets the consumer soon after the query.
-		InactiveThreshold: 10 * time.Second,
-	})
-	if err != nil {
-		return q.fail(err)
+	if !f(first.Data, first.Sequence) || first.Sequence+1 >= end {
+		return nil
 	}
-	// Each Fetch of an ordered consumer replaces its server consumer (the
-	// client deletes the old one); delete the last one now rather than
-	// leave it to the inactivity threshold, or frequent queries would
-	// fill the stream's consumer limit (1,000 by default).
-	defer func() {
-		if info := cons.CachedInfo(); info != nil {
-			dctx, cancel := context.WithTimeout(context.Background(), 2*time.Second)
-			q.s.stores.JS.DeleteConsumer(dctx, q.stream, info.Name)
-			cancel()
+	pending, err := q.position(ctx, first.Sequence+1)
+	if err != nil {
+		return err
+	}
+	for batch := 2; pending > 0; batch = min(2*batch, 256) {
+		// No more than are pending, nor than the sequences left before end.
+		if err := q.fetch(ctx, int(min(uint64(batch), pending, end-q.c.next))); err != nil {
+			return err
 		}
-	}()
-	// Fetch in growing batches, never more than are pending, so that the
-	// messages read past the end of the range stay few.
-	batch, pending := 1, uint64(1)
-	for {
-		n := int(min(uint64(batch), pending))
-		done, got, err := q.s.fetchRange(ctx, cons, n, to, end, q.reads, &pending, f)
-		if err != nil {
-			return q.fail(err)
-		}
-		if done {
-			return nil
+		got := 0
+		for {
+			m, seq, ok, err := q.recv(ctx)
+			if err != nil {
+				return err
+			}
+			if !ok {
+				break
+			}
+			got++
+			if seq >= end {
+				return nil
+			}
+			if start, ok := startOf(m.Data()); ok && start >= to {
+				return nil
+			}
+			if !f(m.Data(), seq) || seq+1 >= end {
+				return nil
+			}
 		}
 		if got == 0 {
-			return q.fail(fmt.Errorf("no message within 10 s although %d are pending", pending))
+			return q.fail(fmt.Errorf("no message delivered although %d are pending", pending))
 		}
-		batch = min(2*batch, 256)
+		pending = q.c.pending
 	}
-}
-
-// fetchRange fetches n messages for readRun and hands them to f, up to
-// sequence end (exclusive); done reports that the read is over.
-func (s *Service) fetchRange(ctx context.Context, cons jetstream.Consumer, n int, to float64, end uint64, reads interface{ Inc() }, pending *uint64, f func([]byte, uint64) bool) (done bool, got int, err error) {
-	fctx, cancel := context.WithTimeout(ctx, 10*time.Second)
-	defer cancel()
-	mb, err := cons.Fetch(n, jetstream.FetchContext(fctx))
-	if err != nil {
-		return false, 0, err
-	}
-	for m := range mb.Messages() {
-		got++
-		reads.Inc()
-		md, err := m.Metadata()
-		if err != nil {
-			return false, got, err
-		}
-		*pending = md.NumPending
-		if md.Sequence.Stream >= end {
-			return true, got, nil
-		}
-		if start, ok := startOf(m.Data()); ok && start >= to {
-			return true, got, nil
-		}
-		if !f(m.Data(), md.Sequence.Stream) || md.Sequence.Stream+1 >= end || *pending == 0 {
-			return true, got, nil
-		}
-	}
-	if err := mb.Error(); err != nil && !errors.Is(err, jetstream.ErrNoMessages) && !errors.Is(err, context.DeadlineExceeded) {
-		return false, got, err
-	}
-	return false, got, nil
+	return nil
 }
 
 // scan calls f with every message on subject in stream, in order, until f

@@ -13,6 +13,7 @@ import (
 	"os"
 	"sort"
 	"sync"
+	"sync/atomic"
 	"time"
 
 	"github.com/nats-io/nats.go"
@@ -67,6 +68,10 @@ type Service struct {
 	ready    chan struct{}
 	httpLn   net.Listener
 	readyErr error
+
+	// queryHook, when set (tests), is called by queries as their
+	// consumer is created, reset and fetched from (see querycons.go).
+	queryHook atomic.Pointer[func(ctx context.Context, event string)]
 }
 
 type holding struct {
