@@ -6,6 +6,7 @@ import (
 	"encoding/hex"
 	"errors"
 	"fmt"
+	"strconv"
 	"time"
 
 	"github.com/nats-io/nats.go/jetstream"
@@ -39,6 +40,15 @@ import (
 // to a request no longer listened to, and the query fails rather than
 // return a range with holes.
 
+// resetLevel is the JetStream API level from which a query moves its
+// consumer with a reset: level 5, nats-server 2.15 (the release in
+// go.mod), which has the consumer reset request. Against an older
+// broker (the create answer gives the level of the server hosting the
+// consumer) each later read gets a consumer of its own instead, the
+// previous one deleted first: still one at a time, and still one per
+// read rather than one per fetch.
+const resetLevel = 5
+
 // queryInactive is the inactivity threshold of a query consumer, after
 // which the broker deletes one that its query did not (the process
 // died mid-query).
@@ -53,6 +63,7 @@ type queryConsumer struct {
 	pending uint64                 // messages on the subject from next on
 	dseq    uint64                 // consumer sequence of the last delivery
 	batch   jetstream.MessageBatch // the last fetch until read to its end
+	reset   bool                   // the broker can reset it (resetLevel)
 }
 
 func newConsumerName() string {
@@ -79,7 +90,7 @@ func (q *rangeQuery) position(ctx context.Context, seq uint64) (uint64, error) {
 	if c.cons != nil && c.next == seq {
 		return c.pending, nil
 	}
-	if c.cons != nil && seq >= c.start {
+	if c.cons != nil && c.reset && seq >= c.start {
 		resp, err := q.s.stores.JS.ResetConsumerToSequence(ctx, q.stream, c.name, seq)
 		if err != nil {
 			return 0, q.fail(fmt.Errorf("moving the query consumer to sequence %d: %w", seq, err))
@@ -91,8 +102,9 @@ func (q *rangeQuery) position(ctx context.Context, seq uint64) (uint64, error) {
 		q.hook(ctx, "reset")
 		return c.pending, nil
 	}
-	// None yet, or asked to go below where it was created (reads of a
-	// query go forward, so this is a fallback): a new one.
+	// None yet, a broker without the reset, or asked to go below where
+	// it was created (reads of a query go forward, so this is a
+	// fallback): a new one.
 	q.close()
 	c.name = newConsumerName()
 	cons, err := q.s.stores.JS.CreateConsumer(ctx, q.stream, jetstream.ConsumerConfig{
@@ -113,6 +125,8 @@ func (q *rangeQuery) position(ctx context.Context, seq uint64) (uint64, error) {
 		return 0, q.fail(errors.New("creating the query consumer: no consumer state in the answer"))
 	}
 	c.cons, c.start, c.next, c.pending, c.dseq = cons, seq, seq, info.NumPending, 0
+	level, _ := strconv.Atoi(info.Config.Metadata["_nats.level"])
+	c.reset = level >= resetLevel && !q.s.noConsumerReset.Load()
 	q.hook(ctx, "created")
 	return c.pending, nil
 }

@@ -119,6 +119,22 @@ func TestQueryConsumerOnePerQuery(t *testing.T) {
 			t.Errorf("%s: %d consumers left after the query", c.name, k)
 		}
 	}
+	// A broker without the consumer reset: a consumer per read, one at
+	// a time, the same answer, nothing left.
+	r.svc.noConsumerReset.Store(true)
+	ev.install(r.svc)
+	got, err := r.svc.History(context.Background(), "fenwick-lane", w(1090), w(1110), 1000, AllRevisions())
+	if want := latestReference(fullEst, true, w(1090), w(1110), 1000, estStart, estRev, estKey); err != nil || !reflect.DeepEqual(got, want) {
+		t.Errorf("without reset: %d estimates (%v) differ from the reference's %d", len(got), err, len(want))
+	}
+	if n := ev.counts(); n["created"] != 3 || n["reset"] != 0 {
+		t.Errorf("without reset: %d consumers created and %d resets, want 3 and 0", n["created"], n["reset"])
+	}
+	if k := h.queryConsumers(); k != 0 {
+		t.Errorf("without reset: %d consumers left after the query", k)
+	}
+	r.svc.noConsumerReset.Store(false)
+
 	// The alarm listing reads its chunks through one consumer too.
 	ev.install(r.svc)
 	if _, err := r.svc.Alarms(context.Background(), "fenwick-lane", AlarmOverCurrent, w(480), w(1e6), time.Time{}, 30); err != nil {

@@ -72,6 +72,9 @@ type Service struct {
 	// queryHook, when set (tests), is called by queries as their
 	// consumer is created, reset and fetched from (see querycons.go).
 	queryHook atomic.Pointer[func(ctx context.Context, event string)]
+	// noConsumerReset (tests) makes queries behave as against a broker
+	// without the consumer reset.
+	noConsumerReset atomic.Bool
 }
 
 type holding struct {
