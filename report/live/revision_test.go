@@ -387,9 +387,9 @@ func TestHistoryRevisionRuns(t *testing.T) {
 		}
 	}
 
-	// Queries leave no consumer behind on the streams they read (each
-	// fetch's consumer is deleted; without that, the last one lingers
-	// for the 10 s inactivity threshold).
+	// Queries leave no consumer behind on the streams they read (a
+	// query's consumer is deleted before it returns; without that, it
+	// lingers for the 10 s inactivity threshold).
 	waitFor(t, 5*time.Second, "the query consumers to be deleted", func() bool {
 		n := 0
 		for _, name := range []string{broker.StreamEstimates, broker.StreamAlarms} {
