@@ -61,7 +61,10 @@
 // each, jetstream store_dir on each), point every "undercurrent serve" at
 // them with --broker nats://a:4222,nats://b:4222,nats://c:4222 and set
 // replicas = 3 in the site file's [broker] table so every stream and bucket
-// is replicated (Setup with StreamSettings.Replicas = 3).
+// is replicated (Setup with StreamSettings.Replicas = 3). On one replica
+// the estimate and alarm streams allow direct get, which the history and
+// alarm queries' single-message lookups then use; on more it stays off, so
+// that a lagging follower never answers a lookup of a binary search.
 //
 // References: the NATS JetStream and MQTT documentation of the nats-server
 // project; Apache Arrow columnar format, IPC streaming format section.

@@ -285,3 +285,29 @@ func TestAuthentication(t *testing.T) {
 		t.Fatalf("gateway's MQTT message not stored: %v", err)
 	}
 }
+
+// On one replica the estimate and alarm streams allow direct get (their
+// queries position themselves by single-message lookups); the data stream,
+// read by consumers only, does not need it. A stream made before the
+// setting is updated to it by the next Setup.
+func TestSetupDirectGet(t *testing.T) {
+	s := startTestServer(t, ServerConfig{MQTTPort: -1})
+	_, js := connectJS(t, s.ClientURL(), Auth{})
+	ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
+	defer cancel()
+	if _, err := js.CreateStream(ctx, jetstream.StreamConfig{Name: StreamEstimates, Subjects: []string{EstimatePrefix + ".>"}, Storage: jetstream.MemoryStorage}); err != nil {
+		t.Fatal(err)
+	}
+	if _, err := Setup(ctx, js, StreamSettings{Memory: true}); err != nil {
+		t.Fatal(err)
+	}
+	for name, want := range map[string]bool{StreamEstimates: true, StreamAlarms: true, StreamData: false, StreamDeadLetter: false} {
+		st, err := js.Stream(ctx, name)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if got := st.CachedInfo().Config.AllowDirect; got != want {
+			t.Errorf("stream %s: AllowDirect %v, want %v", name, got, want)
+		}
+	}
+}
