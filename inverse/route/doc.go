@@ -64,7 +64,7 @@
 // estimated robustly from the detrended differences of the whole route
 // (scatter.go) and added to every station's variance, in the anomaly test
 // and the sizes reported too. On a short route (7 to 15 usable stations)
-// tau is taken only when a chi-square test finds scatter beyond the fits'
+// tau is taken only when a test at 1% finds scatter beyond the fits'
 // sigmas, and is then widened for the few intervals it is estimated from
 // (Student's t; Route.ScatterWidening); shorter routes take none. A run whose levels either side (below) do
 // not differ by k sigma is not reported: one or two stations off, not
