@@ -55,7 +55,7 @@ type iagaReader struct {
 	pending  []byte // first data line, read while looking for the header
 	// baseline is the baseline declination (radians east) by which variation
 	// data in H D Z or H E Z are turned to geographic axes; 0 when they are
-	// not (see iagaBaseline).
+	// not (set from the header in newIAGAReader).
 	baseline   float64
 	bsin, bcos float64 // its sine and cosine
 }
