@@ -34,11 +34,12 @@ type Window struct {
 	B      [3]complex128 // complex RMS field per axis, nT
 	Sigma  [3]float64    // one-sigma of |B| per axis from the fit residuals, nT
 	Freq   float64       // Hz used (given or estimated)
-	// FreqSigma is the one-sigma of an estimated Freq, Hz: sqrt(s²/q)/2π,
-	// with s² the residual variance of the fitted axis (n - p - 1 degrees
-	// of freedom) and q the four-parameter fit's normal-matrix entry for
-	// the frequency once the linear parameters are eliminated (the
-	// linearised least-squares covariance). Zero when Freq was given.
+	// FreqSigma is the one-sigma of an estimated Freq, Hz:
+	// (Σ_k q_k/s_k²)^(-1/2)/2π over the axes k, with s_k² the residual
+	// variance of axis k (n - p - 1 degrees of freedom) and q_k its
+	// normal-matrix entry for the frequency once its linear parameters are
+	// eliminated (the linearised least-squares covariance of the joint
+	// fit). Zero when Freq was given.
 	FreqSigma float64
 	Group     string // group of the samples (windows never straddle groups)
 	N         int    // samples in the window
@@ -51,9 +52,10 @@ type DemodSettings struct {
 	// (spectral peak above MinFreq, refined by a four-parameter fit).
 	Freq float64
 	// EstimateFreq re-estimates the frequency in every window by the
-	// four-parameter fit (IEEE Std 1057 / 1241), starting from Freq, on
-	// the axis with the largest amplitude at Freq; Window.FreqSigma
-	// carries each estimate's one-sigma.
+	// four-parameter fit (IEEE Std 1057 / 1241), starting from Freq, with
+	// one frequency shared by the three axes and each axis weighted by its
+	// own noise (the package documentation); Window.FreqSigma carries each
+	// estimate's one-sigma.
 	EstimateFreq bool
 	// Window is the window length, s. Zero means ten cycles of Freq.
 	Window float64
@@ -453,7 +455,7 @@ func (d *demodulator) window(lo, hi int) error {
 	}
 	w.Travel = halfTravel(c, lo, hi, w.Pos)
 	tpl := d.tpl
-	fitAxis, fitQ := -1, 0.0
+	var fitQ [3]float64 // the joint fit's Schur complement per axis (EstimateFreq)
 	if set.EstimateFreq {
 		if d.fit == nil {
 			d.fit = newFreqFit(set.Harmonics, set.Drift)
@@ -462,12 +464,12 @@ func (d *demodulator) window(lo, hi int) error {
 			return c.badValue(k, lo, hi)
 		}
 		// The four-parameter fit (IEEE Std 1057 / 1241) from the nominal
-		// frequency on the axis with the largest amplitude there.
-		f, axis, _, q, err := d.fit.fit(c.Time[lo:hi], set.Freq, 30)
+		// frequency, one frequency shared by the three axes.
+		f, _, q, err := d.fit.fit(c.Time[lo:hi], set.Freq, 30)
 		if err != nil {
 			return fmt.Errorf("calibrate: demodulate: window at rows %d-%d (t = %.6f s): %w", lo, hi-1, t0, err)
 		}
-		fitAxis, fitQ = axis, q
+		fitQ = q
 		w.Freq = f
 		if math.Abs(f-set.Freq) > set.Band {
 			if d.outBand == 0 {
@@ -505,6 +507,7 @@ func (d *demodulator) window(lo, hi int) error {
 	}
 	xty, beta := d.xty[:p], d.beta[:p]
 	dof := float64(hi - lo - p)
+	var freqInfo float64 // Σ q_k/s_k², the estimated frequency's information
 	for k := 0; k < 3; k++ {
 		y := c.B[k][lo:hi]
 		ref := y[0]
@@ -547,8 +550,9 @@ func (d *demodulator) window(lo, hi int) error {
 		}
 		rss := math.Max(yy-fitted, 0)
 		s2 := rss / dof
-		if k == fitAxis && fitQ > 0 {
-			w.FreqSigma = math.Sqrt(rss/(dof-1)/fitQ) / (2 * math.Pi)
+		if fitQ[k] > 0 {
+			// rss = 0 (a noise-free tone) makes it infinite: sigma 0.
+			freqInfo += fitQ[k] * (dof - 1) / rss
 		}
 		a, b := beta[0], beta[1]
 		w.B[k] = localToAbsolute(a, b, w.Freq, t0, 1)
@@ -565,6 +569,9 @@ func (d *demodulator) window(lo, hi int) error {
 		for j, h := range set.Harmonics {
 			harm[j][k] = localToAbsolute(beta[3+2*j], beta[4+2*j], w.Freq, t0, h)
 		}
+	}
+	if freqInfo > 0 {
+		w.FreqSigma = 1 / math.Sqrt(freqInfo) / (2 * math.Pi)
 	}
 	d.res.Windows = append(d.res.Windows, w)
 	if harm != nil {
@@ -649,7 +656,7 @@ func (d *demodulator) phaseDrift(ws []Window) {
 // estimateFreq finds the dominant frequency above minFreq: the peak of the
 // summed power spectrum of the three axes over the first long run (up to
 // 65536 samples), interpolated, then refined by the four-parameter fit
-// (freqFit, on the strongest axis).
+// (freqFit, on the three axes jointly).
 func estimateFreq(c *Columns, runs []run, dt, minFreq float64) (float64, error) {
 	var r run
 	for _, x := range runs {
@@ -704,15 +711,15 @@ func estimateFreq(c *Columns, runs []run, dt, minFreq float64) (float64, error) 
 		}
 	}
 	f0 := (float64(peak) + delta) * df
-	// The four-parameter fit from f0 on the axis with the largest
-	// amplitude at f0, as in the windows of EstimateFreq.
+	// The joint four-parameter fit of the three axes from f0, as in the
+	// windows of EstimateFreq.
 	ff := newFreqFit(nil, false)
 	a, b := r.lo, r.lo+n
 	if ff.load(c.Time[a:b], [3][]float64{c.B[0][a:b], c.B[1][a:b], c.B[2][a:b]}) >= 0 {
 		// Non-finite readings: the window holding them reports them.
 		return f0, nil
 	}
-	f, _, _, _, err := ff.fit(c.Time[a:b], f0, 30)
+	f, _, _, err := ff.fit(c.Time[a:b], f0, 30)
 	if err != nil || math.Abs(f-f0) > 2*df {
 		return f0, nil
 	}

@@ -10,84 +10,207 @@ import (
 	"gonum.org/v1/gonum/mat"
 )
 
-// refFitSine4 is a straightforward four-parameter least-squares sine fit
-// after IEEE Std 1057 section 4.1.3.3 (the four-parameter algorithm):
-// start from the three-parameter fit at freq0, then repeatedly solve the
-// linearised problem in (A, B, C, [harmonics], [drift], Δω) with the design
-// matrix built column by column from math.Sincos and solved by gonum's QR
-// least squares (mat.Dense.Solve), until the step moves the phase across
-// the window by less than 1e-13 rad. It returns the frequency, Hz.
-func refFitSine4(t *testing.T, tt, y []float64, freq0 float64, harmonics []int, drift bool) float64 {
+// refDesign is the design matrix of the sine-fit model at angular
+// frequency w on the times tt (basis origin tt[0]), built column by column
+// from math.Sincos: cos, sin, 1, the cos and sin of each harmonic, τ when
+// drift is set.
+func refDesign(tt []float64, w float64, harmonics []int, drift bool) *mat.Dense {
+	p := 3 + 2*len(harmonics)
+	if drift {
+		p++
+	}
+	X := mat.NewDense(len(tt), p, nil)
+	for i, ti := range tt {
+		tau := ti - tt[0]
+		s, c := math.Sincos(w * tau)
+		X.Set(i, 0, c)
+		X.Set(i, 1, s)
+		X.Set(i, 2, 1)
+		for j, h := range harmonics {
+			sh, ch := math.Sincos(float64(h) * w * tau)
+			X.Set(i, 3+2*j, ch)
+			X.Set(i, 4+2*j, sh)
+		}
+		if drift {
+			X.Set(i, p-1, tau)
+		}
+	}
+	return X
+}
+
+// refLinear is the linear (three-parameter, plus harmonics and drift) fit
+// of y less its first value at angular frequency w, by gonum's QR least
+// squares (mat.VecDense.SolveVec). It returns the residuals, their sum of
+// squares and the frequency column d = τ(-A sin ωτ + B cos ωτ) of the
+// four-parameter algorithm of IEEE Std 1057 section 4.1.3.3 at the fitted
+// A, B (the fundamental's derivative ∂y/∂ω).
+func refLinear(t *testing.T, tt, y []float64, w float64, harmonics []int, drift bool) (r []float64, rss float64, d []float64) {
+	t.Helper()
+	n := len(tt)
+	X := refDesign(tt, w, harmonics, drift)
+	yv := mat.NewVecDense(n, nil)
+	for i := range y {
+		yv.SetVec(i, y[i]-y[0])
+	}
+	var beta, pred mat.VecDense
+	if err := beta.SolveVec(X, yv); err != nil {
+		t.Fatal(err)
+	}
+	pred.MulVec(X, &beta)
+	a, b := beta.AtVec(0), beta.AtVec(1)
+	r, d = make([]float64, n), make([]float64, n)
+	for i := range r {
+		r[i] = yv.AtVec(i) - pred.AtVec(i)
+		rss += r[i] * r[i]
+		tau := tt[i] - tt[0]
+		s, c := math.Sincos(w * tau)
+		d[i] = tau * (-a*s + b*c)
+	}
+	return r, rss, d
+}
+
+// refJointFit is a dense reference for the joint four-parameter fit of
+// several axes sharing one frequency, after the four-parameter algorithm
+// of IEEE Std 1057 section 4.1.3.3 extended to weighted axes: each
+// Gauss-Newton step stacks the axes into one least-squares problem in all
+// their linear parameters and the one frequency step, each axis's rows
+// divided by the root of its residual sum of squares at the current
+// frequency, and solves it by gonum's QR (mat.QR on the whole stacked
+// design, 3n rows), until the step moves the phase across the window by
+// less than 1e-13 rad. An axis with no variation at all is left out. It
+// returns the frequency, Hz, and its one-sigma, Hz, from the last diagonal
+// entry of R (1/R² is the frequency's variance with rows weighted by
+// 1/s_k, s_k² = RSS_k/(n-p-1)).
+func refJointFit(t *testing.T, tt []float64, ys [][]float64, freq0 float64, harmonics []int, drift bool) (freq, sigma float64) {
 	t.Helper()
 	n := len(tt)
 	p := 3 + 2*len(harmonics)
 	if drift {
 		p++
 	}
-	// Work on y less its first value, as the demodulator does; the
-	// constant absorbs it.
-	yv := mat.NewVecDense(n, nil)
-	for i := range y {
-		yv.SetVec(i, y[i]-y[0])
-	}
-	design := func(w, a, b float64, withFreq bool) *mat.Dense {
-		m := p
-		if withFreq {
-			m++
-		}
-		X := mat.NewDense(n, m, nil)
-		for i, ti := range tt {
-			tau := ti - tt[0]
-			s, c := math.Sincos(w * tau)
-			X.Set(i, 0, c)
-			X.Set(i, 1, s)
-			X.Set(i, 2, 1)
-			for j, h := range harmonics {
-				sh, ch := math.Sincos(float64(h) * w * tau)
-				X.Set(i, 3+2*j, ch)
-				X.Set(i, 4+2*j, sh)
-			}
-			if drift {
-				X.Set(i, p-1, tau)
-			}
-			if withFreq {
-				X.Set(i, p, tau*(-a*s+b*c))
+	var axes [][]float64
+	for _, y := range ys {
+		for _, v := range y {
+			if v != y[0] {
+				axes = append(axes, y)
+				break
 			}
 		}
-		return X
 	}
+	m := len(axes)
 	w := 2 * math.Pi * freq0
-	var beta mat.VecDense
-	if err := beta.SolveVec(design(w, 0, 0, false), yv); err != nil {
-		t.Fatal(err)
-	}
-	a, b := beta.AtVec(0), beta.AtVec(1)
 	span := tt[n-1] - tt[0]
 	for it := 0; it < 100; it++ {
+		J := mat.NewDense(m*n, m*p+1, nil)
+		rhs := mat.NewVecDense(m*n, nil)
+		X := refDesign(tt, w, harmonics, drift)
+		for k, y := range axes {
+			_, rss, d := refLinear(t, tt, y, w, harmonics, drift)
+			s := 1 / math.Sqrt(rss)
+			for i := 0; i < n; i++ {
+				for j := 0; j < p; j++ {
+					J.Set(k*n+i, k*p+j, s*X.At(i, j))
+				}
+				J.Set(k*n+i, m*p, s*d[i])
+				rhs.SetVec(k*n+i, s*(y[i]-y[0]))
+			}
+		}
+		var qr mat.QR
+		qr.Factorize(J)
 		var theta mat.VecDense
-		if err := theta.SolveVec(design(w, a, b, true), yv); err != nil {
+		if err := qr.SolveVecTo(&theta, false, rhs); err != nil {
 			t.Fatal(err)
 		}
-		dw := theta.AtVec(p)
+		dw := theta.AtVec(m * p)
 		w += dw
-		a, b = theta.AtVec(0), theta.AtVec(1)
 		if math.Abs(dw)*span < 1e-13 {
 			break
 		}
 	}
-	return w / (2 * math.Pi)
+	// The covariance at the converged frequency, rows weighted by 1/s_k.
+	J := mat.NewDense(m*n, m*p+1, nil)
+	X := refDesign(tt, w, harmonics, drift)
+	for k, y := range axes {
+		_, rss, d := refLinear(t, tt, y, w, harmonics, drift)
+		s := 1 / math.Sqrt(rss/float64(n-p-1))
+		for i := 0; i < n; i++ {
+			for j := 0; j < p; j++ {
+				J.Set(k*n+i, k*p+j, s*X.At(i, j))
+			}
+			J.Set(k*n+i, m*p, s*d[i])
+		}
+	}
+	var qr mat.QR
+	qr.Factorize(J)
+	var R mat.Dense
+	qr.RTo(&R)
+	return w / (2 * math.Pi), 1 / math.Abs(R.At(m*p, m*p)) / (2 * math.Pi)
+}
+
+// refProfileFreq maximises the profile likelihood of Gaussian white noise
+// with an unknown variance per axis, -(n/2) Σ_k log RSS_k(ω), RSS_k the
+// linear fit's residual sum of squares at ω (refLinear, gonum QR). Its
+// derivative in ω is -(n/2) Σ_k RSS_k'/RSS_k with RSS_k' = -2 dᵀr (the
+// envelope theorem: β is optimal at each ω; without harmonics d is the
+// exact derivative of the model). The maximum is bracketed on a grid of
+// phases across the window, (ω - ω0)·span in [-2, 2] rad by 0.05, as the
+// sign change of the derivative with the largest likelihood, and the
+// derivative's zero is found by bisection to 1e-13 rad.
+func refProfileFreq(t *testing.T, tt []float64, ys [][]float64, freq0 float64, drift bool) float64 {
+	t.Helper()
+	n := len(tt)
+	span := tt[n-1] - tt[0]
+	w0 := 2 * math.Pi * freq0
+	// f is Σ log RSS_k (to minimise) and g its derivative in x.
+	eval := func(x float64) (f, g float64) {
+		w := w0 + x/span
+		for _, y := range ys {
+			r, rss, d := refLinear(t, tt, y, w, nil, drift)
+			var dr float64
+			for i := range r {
+				dr += d[i] * r[i]
+			}
+			f += math.Log(rss)
+			g += -2 * dr / rss / span
+		}
+		return f, g
+	}
+	lo, hi, best := 0.0, 0.0, math.Inf(1)
+	_, gPrev := eval(-2)
+	for x := -1.95; x <= 2; x += 0.05 {
+		f, g := eval(x)
+		if gPrev < 0 && g >= 0 && f < best {
+			lo, hi, best = x-0.05, x, f
+		}
+		gPrev = g
+	}
+	if math.IsInf(best, 1) {
+		t.Fatal("profile likelihood: no maximum within 2 rad of the start")
+	}
+	for hi-lo > 1e-13 {
+		mid := 0.5 * (lo + hi)
+		if _, g := eval(mid); g < 0 {
+			lo = mid
+		} else {
+			hi = mid
+		}
+	}
+	return (w0 + 0.5*(lo+hi)/span) / (2 * math.Pi)
 }
 
 func TestDemodulateEstimateFreqMatchesReference(t *testing.T) {
-	// The fast per-window four-parameter fit must land where the plain
-	// IEEE Std 1057 four-parameter algorithm (refFitSine4, QR on the full
-	// design matrix) does, on the strongest axis, and the window's phasors
-	// must be the three-parameter fits (FitSine, QR) at that frequency.
+	// The fast per-window joint fit must land where the dense reference
+	// does (refJointFit: the IEEE Std 1057 four-parameter algorithm on the
+	// three axes stacked and weighted, gonum QR), with the same sigma, and
+	// without harmonics at the maximum of the profile likelihood
+	// (refProfileFreq, bisection on its derivative); the window's phasors must be the
+	// three-parameter fits (FitSine, QR) at that frequency.
 	const (
-		// On noise-free data both converge to the tone; what is left is
-		// rounding, far inside the brief's 1e-9.
-		tolFreq = 1e-9 // relative
-		tolAmp  = 1e-9 // relative
+		// On noise-free data all converge to the tone; what is left is
+		// rounding and the sigma-tied stop, far inside the brief's 1e-9.
+		tolFreq  = 1e-9 // relative
+		tolAmp   = 1e-9 // relative
+		tolSigma = 1e-6 // relative; the sigma's q comes from the last step
 	)
 	for _, tc := range []struct {
 		name  string
@@ -101,21 +224,35 @@ func TestDemodulateEstimateFreqMatchesReference(t *testing.T) {
 		// jitter, s, is added to each time stamp (uniform), taking the
 		// samples off the grid where the basis needs math.Sincos.
 		jitter float64
+		// extra is further noise per axis (nT, on top of noise), so that
+		// the axes' weights differ.
+		extra [3]float64
+		// dead holds axis 2 at a constant, a channel that does not vary.
+		dead bool
 	}{
-		{"unix times, 0.2 Hz off", 1.7e9, 50.2, 0, DemodSettings{Freq: 50, Window: 0.1}, false, 0},
-		{"from zero, 1.3 Hz off, overlap", 0, 51.3, 0, DemodSettings{Freq: 50, Window: 0.2, Step: 0.05}, false, 0},
-		{"harmonics and drift", 1.7e9, 49.9, 0, DemodSettings{Freq: 50, Window: 0.1, Harmonics: []int{3}, Drift: true}, false, 0},
-		{"exact tone, drift", 0, 50.37, 0, DemodSettings{Freq: 50, Window: 0.1, Drift: true}, true, 0},
-		{"noisy", 1.7e9, 50.2, 1, DemodSettings{Freq: 50, Window: 0.1}, false, 0},
-		{"noisy, harmonics and drift", 0, 50.2, 1, DemodSettings{Freq: 50, Window: 0.1, Harmonics: []int{2, 3}, Drift: true}, false, 0},
-		{"jittered clock", 1000, 50.2, 0.1, DemodSettings{Freq: 50, Window: 0.1}, false, 1e-5},
-		{"jittered clock, harmonics", 1000, 50.2, 0.1, DemodSettings{Freq: 50, Window: 0.1, Harmonics: []int{3}}, false, 1e-5},
+		{"unix times, 0.2 Hz off", 1.7e9, 50.2, 0, DemodSettings{Freq: 50, Window: 0.1}, false, 0, [3]float64{}, false},
+		{"from zero, 1.3 Hz off, overlap", 0, 51.3, 0, DemodSettings{Freq: 50, Window: 0.2, Step: 0.05}, false, 0, [3]float64{}, false},
+		{"harmonics and drift", 1.7e9, 49.9, 0, DemodSettings{Freq: 50, Window: 0.1, Harmonics: []int{3}, Drift: true}, false, 0, [3]float64{}, false},
+		{"exact tone, drift", 0, 50.37, 0, DemodSettings{Freq: 50, Window: 0.1, Drift: true}, true, 0, [3]float64{}, false},
+		{"noisy", 1.7e9, 50.2, 1, DemodSettings{Freq: 50, Window: 0.1}, false, 0, [3]float64{}, false},
+		{"noisy, harmonics and drift", 0, 50.2, 1, DemodSettings{Freq: 50, Window: 0.1, Harmonics: []int{2, 3}, Drift: true}, false, 0, [3]float64{}, false},
+		{"unequal noise", 1.7e9, 50.2, 1, DemodSettings{Freq: 50, Window: 0.1}, false, 0, [3]float64{0, 20, 3}, false},
+		{"unequal noise, drift, 0.8 Hz off", 0, 49.2, 0.5, DemodSettings{Freq: 50, Window: 0.1, Drift: true}, false, 0, [3]float64{8, 0, 40}, false},
+		{"dead axis", 1.7e9, 50.2, 1, DemodSettings{Freq: 50, Window: 0.1}, false, 0, [3]float64{}, true},
+		{"jittered clock", 1000, 50.2, 0.1, DemodSettings{Freq: 50, Window: 0.1}, false, 1e-5, [3]float64{}, false},
+		{"jittered clock, harmonics", 1000, 50.2, 0.1, DemodSettings{Freq: 50, Window: 0.1, Harmonics: []int{3}}, false, 1e-5, [3]float64{}, false},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			rng := rand.New(rand.NewPCG(31, 32))
 			c := acLog(rng, 2000, 2000, tc.t0, tc.f, testPhasors, tc.noise)
 			for i := range c.Time {
 				c.Time[i] += tc.jitter * rng.Float64()
+				for k, e := range tc.extra {
+					c.B[k][i] += e * rng.NormFloat64()
+				}
+				if tc.dead {
+					c.B[2][i] = -47500
+				}
 			}
 			set := tc.set
 			set.EstimateFreq = true
@@ -132,10 +269,21 @@ func TestDemodulateEstimateFreqMatchesReference(t *testing.T) {
 			for i, w := range res.Windows[:5] {
 				lo := i * hop
 				tt := c.Time[lo : lo+n]
-				// testPhasors puts the strongest tone on axis 0.
-				want := refFitSine4(t, tt, c.B[0][lo:lo+n], set.Freq, set.Harmonics, set.Drift)
+				ys := [][]float64{c.B[0][lo : lo+n], c.B[1][lo : lo+n], c.B[2][lo : lo+n]}
+				want, sigma := refJointFit(t, tt, ys, set.Freq, set.Harmonics, set.Drift)
 				if d := math.Abs(w.Freq-want) / want; d > tolFreq {
 					t.Errorf("window %d: %.12f Hz, reference %.12f Hz (relative %.2g)", i, w.Freq, want, d)
+				}
+				if tc.noise > 0 {
+					if d := math.Abs(w.FreqSigma-sigma) / sigma; d > tolSigma {
+						t.Errorf("window %d: sigma %.9g Hz, reference %.9g Hz (relative %.2g)", i, w.FreqSigma, sigma, d)
+					}
+					if len(set.Harmonics) == 0 {
+						prof := refProfileFreq(t, tt, ys[:map[bool]int{false: 3, true: 2}[tc.dead]], set.Freq, set.Drift)
+						if d := math.Abs(w.Freq-prof) / prof; d > tolFreq {
+							t.Errorf("window %d: %.12f Hz, profile likelihood's maximum %.12f Hz (relative %.2g)", i, w.Freq, prof, d)
+						}
+					}
 				}
 				if tc.exact {
 					if d := math.Abs(w.Freq-tc.f) / tc.f; d > tolFreq {
@@ -143,6 +291,12 @@ func TestDemodulateEstimateFreqMatchesReference(t *testing.T) {
 					}
 				}
 				for k := 0; k < 3; k++ {
+					if tc.dead && k == 2 {
+						if w.B[k] != 0 {
+							t.Errorf("window %d: dead axis has |B| = %g", i, cmplx.Abs(w.B[k]))
+						}
+						continue
+					}
 					ref, err := FitSine(tt, c.B[k][lo:lo+n], want, &SineSettings{Harmonics: set.Harmonics, Drift: set.Drift})
 					if err != nil {
 						t.Fatal(err)
@@ -159,29 +313,35 @@ func TestDemodulateEstimateFreqMatchesReference(t *testing.T) {
 
 func TestDemodulateFreqNotGivenIsFourParameterFit(t *testing.T) {
 	// With no frequency given, the spectral estimate is refined by the
-	// same fast fit on the first 2^k samples (16384 of 20000) of the
-	// strongest axis: the result must be the stationary point of the plain
-	// IEEE Std 1057 four-parameter fit there, so refFitSine4 started from
-	// it stays put.
+	// same joint fit on the first 2^k samples (16384 of 20000) of the
+	// three axes: the result must be the stationary point of the dense
+	// reference there, so refJointFit started from it stays put.
 	const tol = 1e-9 // relative; rounding and the sigma-tied stop
 	c := acLog(rand.New(rand.NewPCG(33, 34)), 2000, 20000, 1.7e9, 49.93, testPhasors, 1)
 	res, err := DemodulateColumns(c, nil)
 	if err != nil {
 		t.Fatal(err)
 	}
-	want := refFitSine4(t, c.Time[:16384], c.B[0][:16384], res.Freq, nil, false)
+	const m = 16384
+	want, _ := refJointFit(t, c.Time[:m], [][]float64{c.B[0][:m], c.B[1][:m], c.B[2][:m]}, res.Freq, nil, false)
 	if d := math.Abs(res.Freq-want) / want; d > tol {
-		t.Errorf("estimated %.12f Hz, the four-parameter fit moves it to %.12f Hz (relative %.2g)", res.Freq, want, d)
+		t.Errorf("estimated %.12f Hz, the joint four-parameter fit moves it to %.12f Hz (relative %.2g)", res.Freq, want, d)
 	}
 }
 
 func TestDemodulateFreqSigmaMonteCarlo(t *testing.T) {
 	// The reported FreqSigma must match the scatter of the estimates over
 	// many independent noisy windows (within 15%), and both must match the
-	// Cramér-Rao bound for the frequency of a sinusoid in white noise,
-	// var(ω) = 12 / (η Δ² N (N² - 1)) (Rife and Boorstyn, IEEE Trans. Inf.
-	// Theory 20(5), 1974; from memory), with η = A²/2σ² the signal-to-noise
-	// ratio of a real tone of peak amplitude A and Δ the sample interval.
+	// Cramér-Rao bound of the joint problem. For one sinusoid in white
+	// noise the bound is var(ω) = 12 / (η Δ² N (N² - 1)) (Rife and
+	// Boorstyn, IEEE Trans. Inf. Theory 20(5), 1974; from memory), with
+	// η = A²/2σ² the signal-to-noise ratio of a real tone of peak amplitude
+	// A and Δ the sample interval; the axes' noises are independent, so
+	// their Fisher informations for the shared frequency add and the bound
+	// is 1/Σ_k η_k Δ² N (N² - 1)/12 (the information of independent
+	// observations is additive, a textbook property; the axes' amplitudes
+	// and phases, like the unknown noise variances, are asymptotically
+	// orthogonal to ω in the Fisher matrix).
 	if testing.Short() {
 		t.Skip("Monte Carlo of 1000 windows")
 	}
@@ -227,15 +387,113 @@ func TestDemodulateFreqSigmaMonteCarlo(t *testing.T) {
 			if math.Abs(reported-scatter) > tolScatter*scatter {
 				t.Errorf("reported sigma %.4g Hz, scatter of the estimates %.4g Hz", reported, scatter)
 			}
-			amp := math.Sqrt2 * cmplx.Abs(testPhasors[0])
-			eta := amp * amp / (2 * noise * noise)
-			crb := math.Sqrt(12/(eta*float64(n)*(n*n-1))) * fs / (2 * math.Pi)
+			crb := jointCRB(testPhasors, [3]float64{noise, noise, noise}, fs, n)
 			t.Logf("reported %.4g Hz, scatter %.4g Hz, Cramér-Rao %.4g Hz", reported, scatter, crb)
 			if math.Abs(reported-crb) > tolCRB*crb {
 				t.Errorf("reported sigma %.4g Hz, Cramér-Rao bound %.4g Hz", reported, crb)
 			}
 			if math.Abs(mean-f) > 4*scatter/math.Sqrt(windows) {
 				t.Errorf("mean estimate %.6f Hz, want %g (scatter %.3g)", mean, f, scatter)
+			}
+		})
+	}
+}
+
+// jointCRB is the Cramér-Rao bound, Hz, of a frequency shared by three
+// axes carrying complex RMS phasors ph in independent white noises of
+// standard deviations noise, n samples at fs (see
+// TestDemodulateFreqSigmaMonteCarlo).
+func jointCRB(ph [3]complex128, noise [3]float64, fs float64, n int) float64 {
+	var info float64
+	for k := range ph {
+		amp := math.Sqrt2 * cmplx.Abs(ph[k])
+		eta := amp * amp / (2 * noise[k] * noise[k])
+		info += eta * float64(n) * (float64(n)*float64(n) - 1) / 12
+	}
+	return math.Sqrt(1/info) * fs / (2 * math.Pi)
+}
+
+// freqStats demodulates c with set and returns the root-mean-square
+// reported FreqSigma and the scatter of the estimated frequencies, Hz.
+func freqStats(t *testing.T, c *Columns, set DemodSettings, windows int) (reported, scatter float64) {
+	t.Helper()
+	res, err := DemodulateColumns(c, &set)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(res.Windows) != windows {
+		t.Fatalf("%d windows, want %d", len(res.Windows), windows)
+	}
+	var mean, ss, sig2 float64
+	for _, w := range res.Windows {
+		mean += w.Freq
+		sig2 += w.FreqSigma * w.FreqSigma
+	}
+	mean /= float64(windows)
+	for _, w := range res.Windows {
+		ss += (w.Freq - mean) * (w.Freq - mean)
+	}
+	return math.Sqrt(sig2 / float64(windows)), math.Sqrt(ss / float64(windows-1))
+}
+
+func TestDemodulateJointFreqSigma(t *testing.T) {
+	// The joint fit against the fit of the strongest axis alone (the same
+	// log with the other two axes held constant, which the joint fit
+	// leaves out), over 1000 noisy windows. With comparable amplitudes on
+	// two axes the joint sigma must shrink as the Cramér-Rao bound does,
+	// sqrt(η_0/Σ η_k) (TestDemodulateFreqSigmaMonteCarlo), both as
+	// reported and as the scatter of the estimates; with the signal on one
+	// axis and only noise, however loud, on the others it must neither
+	// shrink nor grow.
+	if testing.Short() {
+		t.Skip("Monte Carlo of 2 × 1000 windows per case")
+	}
+	const (
+		fs, n, windows = 2000.0, 200, 1000
+		f              = 50.2
+		// The reported sigmas are means over 1000 windows of nearly the
+		// same linearised value: 2% covers their spread. The scatters are
+		// each known to 1/√2000 ≈ 2.2%, and the two fits' errors are
+		// correlated through axis 0: 7% on their ratio.
+		tolReported = 0.02
+		tolScatter  = 0.07
+	)
+	for _, tc := range []struct {
+		name  string
+		ph    [3]complex128
+		noise [3]float64
+	}{
+		// |B| = 100 and 90.1 nT RMS: a ratio of sqrt(10000/18135) = 0.743.
+		{"comparable amplitudes on two axes", [3]complex128{complex(80, -60), complex(30, 85), complex(3, 1)}, [3]float64{3, 3, 3}},
+		{"test field", testPhasors, [3]float64{3, 3, 3}},
+		{"signal on one axis, noise on two", [3]complex128{complex(80, -60), 0, 0}, [3]float64{3, 3, 30}},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			rng := rand.New(rand.NewPCG(51, 52))
+			c := acLog(rng, fs, n*windows, 1.7e9, f, tc.ph, 0)
+			for k := range c.B {
+				for i := range c.B[k] {
+					c.B[k][i] += tc.noise[k] * rng.NormFloat64()
+				}
+			}
+			set := DemodSettings{Freq: 50, Window: 0.1, EstimateFreq: true, Band: 5}
+			jointRep, jointSc := freqStats(t, c, set, windows)
+			for _, k := range []int{1, 2} {
+				for i := range c.B[k] {
+					c.B[k][i] = 0
+				}
+			}
+			oneRep, oneSc := freqStats(t, c, set, windows)
+			var ph0 [3]complex128
+			ph0[0] = tc.ph[0]
+			want := jointCRB(tc.ph, tc.noise, fs, n) / jointCRB(ph0, tc.noise, fs, n)
+			t.Logf("joint: reported %.4g Hz, scatter %.4g Hz; axis 0 alone: reported %.4g Hz, scatter %.4g Hz; ratios %.4f and %.4f, Cramér-Rao %.4f",
+				jointRep, jointSc, oneRep, oneSc, jointRep/oneRep, jointSc/oneSc, want)
+			if r := jointRep / oneRep; math.Abs(r-want) > tolReported*want {
+				t.Errorf("reported sigma: joint/one axis = %.4f, Cramér-Rao ratio %.4f", r, want)
+			}
+			if r := jointSc / oneSc; math.Abs(r-want) > tolScatter*want {
+				t.Errorf("scatter: joint/one axis = %.4f, Cramér-Rao ratio %.4f", r, want)
 			}
 		})
 	}
@@ -249,6 +507,21 @@ func TestDemodulateEstimateFreqBadValue(t *testing.T) {
 	_, err := DemodulateColumns(c, &DemodSettings{Freq: 50, Window: 0.1, EstimateFreq: true})
 	if err == nil || !strings.Contains(err.Error(), "row 456: column bz") {
 		t.Errorf("err = %v, want one naming row 456 column bz", err)
+	}
+}
+
+func TestDemodulateEstimateFreqNoSignal(t *testing.T) {
+	// A window where no axis varies has no frequency: an error naming the
+	// window, not a NaN frequency.
+	c := acLog(rand.New(rand.NewPCG(47, 48)), 2000, 1000, 0, 50, [3]complex128{}, 0)
+	for k := range c.B {
+		for i := range c.B[k] {
+			c.B[k][i] = 100
+		}
+	}
+	_, err := DemodulateColumns(c, &DemodSettings{Freq: 50, Window: 0.1, EstimateFreq: true})
+	if err == nil || !strings.Contains(err.Error(), "rows 0-199") || !strings.Contains(err.Error(), "no axis varies") {
+		t.Errorf("err = %v, want one naming rows 0-199 and saying no axis varies", err)
 	}
 }
 

@@ -439,26 +439,62 @@ func cholSolve(l, b []float64) {
 // moves the phase across the window by less than 1e-10 rad, FitSine4's
 // test). The iterations converge linearly at a rate of about the
 // noise-to-signal ratio over √n (1e-3 for 1 nT of noise on a 125 nT tone
-// over 200 samples), so the next step, the change this test can make to
-// the answer, is some 1e-9 sigma: far below anything the sigma could
-// resolve, and it saves one Gauss-Newton pass in five on such windows.
-const stepTolSigma = 1e-6
+// over 200 samples; a few times that on the joint fit of weaker axes), so
+// the next step, the change this test can make to the answer, is some
+// 1e-8 sigma: far below anything the sigma could resolve, and it saves
+// about one Gauss-Newton pass in five (4.1 passes a window on the
+// benchmark's log of BenchmarkDemodulateEstimateFreq, against 4.5 with a
+// tolerance of 1e-6).
+const stepTolSigma = 1e-5
 
-// freqFit is the four-parameter sine fit of IEEE Std 1057 / 1241 on the
-// three axes of a window, with buffers reused from window to window. It
-// reproduces FitSine4 on the axis with the largest three-parameter
-// amplitude at the starting frequency, by the same Gauss-Newton
-// iterations, but works on normal equations: each iteration makes one pass
-// over the samples to form the normal matrix of the columns
+// rssFloor is the smallest residual sum of squares freqFit credits an
+// axis with, as a fraction of the axis's sum of squares: below it the
+// residual formed from the normal equations (yᵀy less the fitted part) is
+// rounding, and a noise-free axis would otherwise get an infinite weight.
+const rssFloor = 1e-13
+
+// freqFit is the four-parameter sine fit of IEEE Std 1057 / 1241 fitted
+// jointly to the three axes of a window, with buffers reused from window
+// to window: one frequency shared by the axes, and for each axis its own
+// linear terms (cos, sin, constant, harmonics, drift) and its own noise
+// variance. It works on normal equations: each Gauss-Newton iteration
+// makes one pass over the samples to form the normal matrix of the
+// columns
 //
 //	cos ωτ, sin ωτ, 1, [harmonics], [τ], τ sin ωτ, τ cos ωτ
 //
-// and their products with the data, from which both the three-parameter
-// fit (for the starting amplitudes and the choice of axis) and the
-// Gauss-Newton step, whose frequency column is ∂y/∂ω = τ(-A sin ωτ +
-// B cos ωτ), follow by a Cholesky factor of the p×p basis block and its
-// Schur complement. The last step's Schur complement q gives the
-// frequency's variance s²/q (s² the residual variance).
+// (the same for the three axes, which share their times) and their
+// products with each axis's data. Per axis k, the three-parameter fit at
+// the current ω gives RSS_k(ω), and the frequency column ∂y_k/∂ω =
+// τ(-A_k sin ωτ + B_k cos ωτ), once the axis's linear parameters are
+// eliminated by the Cholesky factor of the p×p basis block, leaves the
+// Schur complement q_k and the right-hand side r_k. The linear parameters
+// of different axes do not couple, so the joint step is
+//
+//	Δω = Σ r_k/σ_k² / Σ q_k/σ_k²,
+//
+// the Schur complements adding across the axes with weights 1/σ_k².
+// (The step actually taken is Newton's on the profile likelihood below:
+// its curvature, 2 Σ q_k/RSS_k in the Gauss-Newton approximation, loses
+// 4 Σ (r_k/RSS_k)² from the weights' own change with ω, which would
+// otherwise slow the convergence to a rate of about 2/n.)
+//
+// The weights are 1/RSS_k(ω) at the current ω (any common factor, such as
+// the degrees of freedom, cancels), re-formed every iteration from sums
+// the pass makes anyway. At convergence they are the weights of the fit's
+// own residuals, and the fixed point is the maximum over ω of the profile
+// likelihood of Gaussian white noise with an unknown variance per axis,
+// -(n/2) Σ_k log RSS_k(ω): its derivative is Σ_k RSS_k'/RSS_k, and
+// RSS_k' = -2 r_k there by the envelope theorem. This is the maximum-
+// likelihood estimate rather than a two-stage weighted fit, so the answer
+// depends neither on a count of re-weightings nor on where the iterations
+// started, and an axis without signal costs nothing: its weight is its
+// own noise and its q_k, growing with the square of its amplitude, is
+// nearly zero. An axis that does not vary at all (a dead channel) is left
+// out. The frequency's variance is 1/Σ_k q_k/s_k² (s_k² the residual
+// variance of axis k), the linearised least-squares covariance of the
+// joint problem; the noise variances and ω are asymptotically
+// uncorrelated, so estimating the weights does not widen it.
 type freqFit struct {
 	harmonics []int
 	drift     bool
@@ -474,7 +510,8 @@ type freqFit struct {
 	xty       [3][]float64 // colsᵀ y per axis
 	yy        [3]float64   // yᵀy per axis
 	l         []float64    // p×p Cholesky factor of the basis block
-	u, z, b0  []float64    // scratch, p each
+	zs, zc    []float64    // the basis block's inverse times the columns τ sin ωτ and τ cos ωτ
+	b0        []float64    // scratch, p
 }
 
 func newFreqFit(harmonics []int, drift bool) *freqFit {
@@ -487,7 +524,7 @@ func newFreqFit(harmonics []int, drift bool) *freqFit {
 		cols: make([][]float64, m),
 		gram: make([]float64, m*m),
 		l:    make([]float64, p*p),
-		u:    make([]float64, p), z: make([]float64, p), b0: make([]float64, p),
+		zs:   make([]float64, p), zc: make([]float64, p), b0: make([]float64, p),
 	}
 	for k := range f.xty {
 		f.xty[k] = make([]float64, m)
@@ -644,7 +681,13 @@ func (f *freqFit) pass3(w float64, axes []int) error {
 	sym(4, 4, t2c2)
 	x := f.xty[a0]
 	x[0], x[1], x[2], x[3], x[4] = yc, ysn, f.y1[a0], yts, ytc
-	for _, k := range axes[1:] {
+	rest := axes[1:]
+	for len(rest) >= 2 {
+		// Two axes in one sweep: eight sums in registers.
+		f.sums3two(rest[0], rest[1], cs, sn)
+		rest = rest[2:]
+	}
+	for _, k := range rest {
 		x := f.xty[k]
 		ys, yt := f.ys[k][:n], f.yt[k][:n]
 		x[0], x[1], x[2], x[3], x[4] = dot(ys, cs), dot(ys, sn), f.y1[k], dot(yt, sn), dot(yt, cs)
@@ -652,89 +695,131 @@ func (f *freqFit) pass3(w float64, axes []int) error {
 	return cholesky(f.l, g, 3, 5)
 }
 
-// linear solves the three-parameter (basis-only) fit of axis k from the
-// current pass into f.b0 and returns its amplitude.
-func (f *freqFit) linear(k int) float64 {
-	b := f.b0
-	copy(b, f.xty[k][:f.p])
-	cholSolve(f.l, b)
-	return math.Hypot(b[0], b[1])
+// sums3two fills the products of the three-parameter pass (pass3) with
+// the columns cs, sn for the axes j and k in one sweep over the samples.
+func (f *freqFit) sums3two(j, k int, cs, sn []float64) {
+	n := len(cs)
+	yj, tj := f.ys[j][:n], f.yt[j][:n]
+	yk, tk := f.ys[k][:n], f.yt[k][:n]
+	var jc, js, jtc, jts, kc, ks, ktc, kts float64
+	for i, c := range cs {
+		s := sn[i]
+		jc += yj[i] * c
+		js += yj[i] * s
+		jtc += tj[i] * c
+		jts += tj[i] * s
+		kc += yk[i] * c
+		ks += yk[i] * s
+		ktc += tk[i] * c
+		kts += tk[i] * s
+	}
+	x := f.xty[j]
+	x[0], x[1], x[2], x[3], x[4] = jc, js, f.y1[j], jts, jtc
+	x = f.xty[k]
+	x[0], x[1], x[2], x[3], x[4] = kc, ks, f.y1[k], kts, ktc
 }
 
-// fit runs the four-parameter fit on the times t (those given to load)
-// from the starting frequency freq0 (Hz). It returns the frequency, the axis
-// fitted, the iterations made and the Schur complement q of the last
-// Gauss-Newton step (the frequency's variance is s²/q, rad²/s²).
-func (f *freqFit) fit(t []float64, freq0 float64, maxIter int) (freq float64, axis, iters int, q float64, err error) {
+// fit runs the joint four-parameter fit on the times t (those given to
+// load) from the starting frequency freq0 (Hz). It returns the frequency,
+// the iterations made and each axis's Schur complement q[k] of the last
+// Gauss-Newton step: the frequency's variance is 1/Σ_k q[k]/s_k² (rad²/s²,
+// s_k² the residual variance of axis k). q[k] is zero for an axis that
+// does not vary.
+func (f *freqFit) fit(t []float64, freq0 float64, maxIter int) (freq float64, iters int, q [3]float64, err error) {
 	n, p := len(t), f.p
 	if n != f.n {
 		panic("calibrate: freqFit: times differ in length from the loaded series")
 	}
 	if n <= p+1 {
-		return 0, 0, 0, 0, fmt.Errorf("calibrate: four-parameter fit: %d samples for %d parameters", n, p+1)
+		return 0, 0, q, fmt.Errorf("calibrate: four-parameter fit: %d samples for %d parameters", n, p+1)
 	}
 	span := t[n-1] - t[0]
 	if !(span > 0) {
-		return 0, 0, 0, 0, errors.New("calibrate: four-parameter fit: times do not increase")
+		return 0, 0, q, errors.New("calibrate: four-parameter fit: times do not increase")
 	}
 	m := p + 2
 	w := 2 * math.Pi * freq0
-	if err := f.pass(w, 0, 1, 2); err != nil {
-		return 0, 0, 0, 0, err
-	}
-	best, bestAmp := 0, -1.0
-	var a, b float64
-	for k := 0; k < 3; k++ {
-		if amp := f.linear(k); amp > bestAmp {
-			best, bestAmp = k, amp
-			a, b = f.b0[0], f.b0[1]
-		}
-	}
 	g := f.gram
+	zs, zc, b0 := f.zs, f.zc, f.b0
+	// A_k, B_k of the frequency column: the three-parameter fit's at freq0
+	// on the first pass, then each step's.
+	var a, b [3]float64
 	for it := 1; it <= maxIter; it++ {
 		iters = it
-		if it > 1 {
-			if err := f.pass(w, best); err != nil {
-				return 0, best, iters, 0, err
+		if err := f.pass(w, 0, 1, 2); err != nil {
+			return 0, iters, q, err
+		}
+		for j := 0; j < p; j++ {
+			zs[j], zc[j] = g[j*m+p], g[j*m+p+1]
+		}
+		cholSolve(f.l, zs)
+		cholSolve(f.l, zc)
+		// Weighted sums over the axes of q_k, of the frequency column's own
+		// norm (for the singularity test) and of r_k.
+		var qw, ddw, rw, rrw float64
+		var lin, zk [3][2]float64 // per axis: (A, B) of the linear fit and of G⁻¹u
+		for k := 0; k < 3; k++ {
+			xty := f.xty[k]
+			copy(b0, xty[:p])
+			cholSolve(f.l, b0)
+			rss := f.yy[k]
+			for j := 0; j < p; j++ {
+				rss -= b0[j] * xty[j]
 			}
+			if it == 1 {
+				a[k], b[k] = b0[0], b0[1]
+			}
+			ak, bk := a[k], b[k]
+			// Border of the normal matrix for the column d = -A τ sin + B τ cos.
+			dd := ak*ak*g[p*m+p] - 2*ak*bk*g[p*m+p+1] + bk*bk*g[(p+1)*m+p+1]
+			qk, rk := dd, -ak*xty[p]+bk*xty[p+1]
+			for j := 0; j < p; j++ {
+				uj := -ak*g[j*m+p] + bk*g[j*m+p+1]
+				qk -= uj * (-ak*zs[j] + bk*zc[j])
+				rk -= uj * b0[j]
+			}
+			lin[k] = [2]float64{b0[0], b0[1]}
+			zk[k] = [2]float64{-ak*zs[0] + bk*zc[0], -ak*zs[1] + bk*zc[1]}
+			rss = math.Max(rss, rssFloor*f.yy[k])
+			q[k] = 0
+			if !(dd > 0) || !(rss > 0) {
+				continue // the axis does not vary: nothing to add
+			}
+			q[k] = qk
+			qw += qk / rss
+			ddw += dd / rss
+			rw += rk / rss
+			rrw += (rk / rss) * (rk / rss)
 		}
-		xty := f.xty[best]
-		// Border of the normal matrix for the column d = -A τ sin + B τ cos.
-		u, z, b0 := f.u, f.z, f.b0
-		for j := 0; j < p; j++ {
-			u[j] = -a*g[j*m+p] + b*g[j*m+p+1]
+		if ddw == 0 {
+			return 0, iters, q, errors.New("calibrate: four-parameter fit: no axis varies in the window, so there is no frequency to fit")
 		}
-		dd := a*a*g[p*m+p] - 2*a*b*g[p*m+p+1] + b*b*g[(p+1)*m+p+1]
-		yd := -a*xty[p] + b*xty[p+1]
-		copy(z, u)
-		cholSolve(f.l, z)
-		copy(b0, xty[:p])
-		cholSolve(f.l, b0)
-		q = dd
-		num := yd
-		for j := 0; j < p; j++ {
-			q -= u[j] * z[j]
-			num -= u[j] * b0[j]
+		if !(qw > 1e-13*ddw) {
+			return 0, iters, q, errSingularBasis
 		}
-		if !(q > 1e-13*dd) {
-			return 0, best, iters, 0, errSingularBasis
+		// The step is Newton's on Σ log RSS_k, whose second derivative is
+		// 2 Σ q_k/RSS_k (Gauss-Newton's) less 4 Σ (r_k/RSS_k)², the
+		// change of the weights with ω; without the second term the
+		// re-weighting would slow the convergence to a rate of about 2/n.
+		// Far from the answer the term is dropped if it would take more
+		// than half of the first.
+		den := qw
+		if c := 2 * rrw; c < 0.5*qw {
+			den -= c
 		}
-		dw := num / q
-		// Residual sum of squares of this linearised step, for the
-		// frequency's sigma sqrt(s²/q).
-		rss := f.yy[best] - dw*yd
-		for j := 0; j < p; j++ {
-			rss -= (b0[j] - z[j]*dw) * xty[j]
-		}
-		sigmaW := math.Sqrt(math.Max(rss, 0) / float64(n-p-1) / q)
+		dw := rw / den
+		// The weights are 1/RSS_k, so Σ q_k/s_k² = (n-p-1) qw.
+		sigmaW := 1 / math.Sqrt(float64(n-p-1)*qw)
 		w += dw
-		a, b = b0[0]-z[0]*dw, b0[1]-z[1]*dw
+		for k := range a {
+			a[k], b[k] = lin[k][0]-zk[k][0]*dw, lin[k][1]-zk[k][1]*dw
+		}
 		if !(w > 0) || math.IsNaN(w) {
-			return 0, best, iters, 0, fmt.Errorf("calibrate: four-parameter fit diverged from %g Hz", freq0)
+			return 0, iters, q, fmt.Errorf("calibrate: four-parameter fit diverged from %g Hz", freq0)
 		}
 		if math.Abs(dw)*span < 1e-10 || math.Abs(dw) <= stepTolSigma*sigmaW {
 			break
 		}
 	}
-	return w / (2 * math.Pi), best, iters, q, nil
+	return w / (2 * math.Pi), iters, q, nil
 }
