@@ -366,24 +366,7 @@ func TestDemodulateFreqSigmaMonteCarlo(t *testing.T) {
 			set := tc.set
 			set.EstimateFreq = true
 			set.Band = 5
-			res, err := DemodulateColumns(c, &set)
-			if err != nil {
-				t.Fatal(err)
-			}
-			if len(res.Windows) != windows {
-				t.Fatalf("%d windows, want %d", len(res.Windows), windows)
-			}
-			var mean, ss, sig2 float64
-			for _, w := range res.Windows {
-				mean += w.Freq
-				sig2 += w.FreqSigma * w.FreqSigma
-			}
-			mean /= windows
-			for _, w := range res.Windows {
-				ss += (w.Freq - mean) * (w.Freq - mean)
-			}
-			scatter := math.Sqrt(ss / (windows - 1))
-			reported := math.Sqrt(sig2 / windows)
+			reported, scatter, mean := freqStats(t, c, set, windows)
 			if math.Abs(reported-scatter) > tolScatter*scatter {
 				t.Errorf("reported sigma %.4g Hz, scatter of the estimates %.4g Hz", reported, scatter)
 			}
@@ -414,8 +397,9 @@ func jointCRB(ph [3]complex128, noise [3]float64, fs float64, n int) float64 {
 }
 
 // freqStats demodulates c with set and returns the root-mean-square
-// reported FreqSigma and the scatter of the estimated frequencies, Hz.
-func freqStats(t *testing.T, c *Columns, set DemodSettings, windows int) (reported, scatter float64) {
+// reported FreqSigma, the scatter of the estimated frequencies and their
+// mean, Hz.
+func freqStats(t *testing.T, c *Columns, set DemodSettings, windows int) (reported, scatter, mean float64) {
 	t.Helper()
 	res, err := DemodulateColumns(c, &set)
 	if err != nil {
@@ -424,7 +408,7 @@ func freqStats(t *testing.T, c *Columns, set DemodSettings, windows int) (report
 	if len(res.Windows) != windows {
 		t.Fatalf("%d windows, want %d", len(res.Windows), windows)
 	}
-	var mean, ss, sig2 float64
+	var ss, sig2 float64
 	for _, w := range res.Windows {
 		mean += w.Freq
 		sig2 += w.FreqSigma * w.FreqSigma
@@ -433,7 +417,7 @@ func freqStats(t *testing.T, c *Columns, set DemodSettings, windows int) (report
 	for _, w := range res.Windows {
 		ss += (w.Freq - mean) * (w.Freq - mean)
 	}
-	return math.Sqrt(sig2 / float64(windows)), math.Sqrt(ss / float64(windows-1))
+	return math.Sqrt(sig2 / float64(windows)), math.Sqrt(ss / float64(windows-1)), mean
 }
 
 func TestDemodulateJointFreqSigma(t *testing.T) {
@@ -477,13 +461,13 @@ func TestDemodulateJointFreqSigma(t *testing.T) {
 				}
 			}
 			set := DemodSettings{Freq: 50, Window: 0.1, EstimateFreq: true, Band: 5}
-			jointRep, jointSc := freqStats(t, c, set, windows)
+			jointRep, jointSc, _ := freqStats(t, c, set, windows)
 			for _, k := range []int{1, 2} {
 				for i := range c.B[k] {
 					c.B[k][i] = 0
 				}
 			}
-			oneRep, oneSc := freqStats(t, c, set, windows)
+			oneRep, oneSc, _ := freqStats(t, c, set, windows)
 			var ph0 [3]complex128
 			ph0[0] = tc.ph[0]
 			want := jointCRB(tc.ph, tc.noise, fs, n) / jointCRB(ph0, tc.noise, fs, n)
