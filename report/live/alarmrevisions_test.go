@@ -221,11 +221,7 @@ func TestAlarmsFollowReread(t *testing.T) {
 // estimate runs, against every revision.
 func BenchmarkAlarmsRevisions(b *testing.B) {
 	h := newHarness(b)
-	two := testSiteText + strings.Replace(testSiteText[strings.Index(testSiteText, "[[asset]]"):], "fenwick-lane", "harrow-fen-busbar", 1)
-	r := h.start(testSite(b, two), "w1")
-	h.storeRevision(0, 1300, 0, true)
-	h.storeRevision(500, 1200, 1, false)
-	h.storeRevision(1100, 1300, 2, false)
+	r := h.startRevisions(b)
 	ctx := context.Background()
 	for _, c := range []struct {
 		name string

@@ -79,8 +79,7 @@ func TestHistoryReadsOnlyTheRange(t *testing.T) {
 		t.Skip("runs a broker and the service")
 	}
 	h := newHarness(t)
-	two := testSiteText + strings.Replace(testSiteText[strings.Index(testSiteText, "[[asset]]"):], "fenwick-lane", "harrow-fen-busbar", 1)
-	r := h.start(testSite(t, two), "w1")
+	r := h.start(twoAssetSite(t), "w1")
 	const n = 2000
 	h.storeHistory(0, n/2)
 	mid := time.Now()
@@ -222,8 +221,7 @@ func TestHistoryReadsOnlyTheRange(t *testing.T) {
 // a full scan of the asset's estimates.
 func BenchmarkHistoryLateWindow(b *testing.B) {
 	h := newHarness(b)
-	two := testSiteText + strings.Replace(testSiteText[strings.Index(testSiteText, "[[asset]]"):], "fenwick-lane", "harrow-fen-busbar", 1)
-	r := h.start(testSite(b, two), "w1")
+	r := h.start(twoAssetSite(b), "w1")
 	h.storeHistory(0, 2000)
 	ctx := context.Background()
 	b.Run("positioned", func(b *testing.B) {

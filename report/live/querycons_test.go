@@ -6,7 +6,6 @@ import (
 	"fmt"
 	"net/http"
 	"reflect"
-	"strings"
 	"sync"
 	"testing"
 	"time"
@@ -78,11 +77,7 @@ func TestQueryConsumerOnePerQuery(t *testing.T) {
 		t.Skip("runs a broker and the service")
 	}
 	h := newHarness(t)
-	two := testSiteText + strings.Replace(testSiteText[strings.Index(testSiteText, "[[asset]]"):], "fenwick-lane", "harrow-fen-busbar", 1)
-	r := h.start(testSite(t, two), "w1")
-	h.storeRevision(0, 1300, 0, true)
-	h.storeRevision(500, 1200, 1, false)
-	h.storeRevision(1100, 1300, 2, false)
+	r := h.startRevisions(t)
 	w := func(k float64) float64 { return t0 + 0.5*k }
 	fullEst := h.estimatesOf("fenwick-lane")
 	estStart, estRev := func(e Estimate) float64 { return e.Start }, func(e Estimate) int { return e.Revision }

@@ -119,6 +119,24 @@ func TestHistoryAfterRestartLatestRevision(t *testing.T) {
 	r.stop(t)
 }
 
+// twoAssetSite is the test site with a second asset, harrow-fen-busbar,
+// beside fenwick-lane.
+func twoAssetSite(t testing.TB) *Site {
+	return testSite(t, testSiteText+strings.Replace(testSiteText[strings.Index(testSiteText, "[[asset]]"):], "fenwick-lane", "harrow-fen-busbar", 1))
+}
+
+// startRevisions starts worker w1 on twoAssetSite with three read
+// revisions of fenwick-lane stored (windows 0..1299 at revision 0 after
+// the busbar's, 500..1199 re-read at 1, 1100..1299 at 2), the fixture of
+// the revision-run queries.
+func (h *harness) startRevisions(t testing.TB) *running {
+	r := h.start(twoAssetSite(t), "w1")
+	h.storeRevision(0, 1300, 0, true)
+	h.storeRevision(500, 1200, 1, false)
+	h.storeRevision(1100, 1300, 2, false)
+	return r
+}
+
 // storeRevision stores windows [k0, k1) of fenwick-lane at read revision
 // rev (with HeaderRevision and the payload field, as the worker does) and,
 // when busbar is set, the same windows of the never-restarted
@@ -248,11 +266,7 @@ func TestHistoryRevisionRuns(t *testing.T) {
 		t.Skip("runs a broker and the service")
 	}
 	h := newHarness(t)
-	two := testSiteText + strings.Replace(testSiteText[strings.Index(testSiteText, "[[asset]]"):], "fenwick-lane", "harrow-fen-busbar", 1)
-	r := h.start(testSite(t, two), "w1")
-	h.storeRevision(0, 1300, 0, true)
-	h.storeRevision(500, 1200, 1, false)
-	h.storeRevision(1100, 1300, 2, false)
+	r := h.startRevisions(t)
 	ctx := context.Background()
 	reads := func(q string) float64 {
 		var m dto.Metric
@@ -440,11 +454,7 @@ func TestHistoryRevisionRuns(t *testing.T) {
 // the same query of a never-restarted asset.
 func BenchmarkHistoryRevisions(b *testing.B) {
 	h := newHarness(b)
-	two := testSiteText + strings.Replace(testSiteText[strings.Index(testSiteText, "[[asset]]"):], "fenwick-lane", "harrow-fen-busbar", 1)
-	r := h.start(testSite(b, two), "w1")
-	h.storeRevision(0, 1300, 0, true)
-	h.storeRevision(500, 1200, 1, false)
-	h.storeRevision(1100, 1300, 2, false)
+	r := h.startRevisions(b)
 	ctx := context.Background()
 	for _, asset := range []string{"fenwick-lane", "harrow-fen-busbar"} {
 		b.Run(asset, func(b *testing.B) {
