@@ -2,7 +2,9 @@ package inverse
 
 import (
 	"math"
+	"math/bits"
 	"math/cmplx"
+	"slices"
 )
 
 // survey holds what the seeding and reporting need to know about the readings.
@@ -191,53 +193,120 @@ func medianInPlace(s []float64) float64 {
 	// The lower middle is the largest element of the part below n/2.
 	lo := s[0]
 	for _, x := range s[1 : n/2] {
-		lo = math.Max(lo, x)
+		if x > lo || x == 0 && lo == 0 && math.Signbit(lo) { // math.Max, without its NaN cases
+			lo = x
+		}
 	}
 	return 0.5 * (lo + hi)
 }
 
 // selectKth reorders s so that s[k] is the value it would have if s were sorted, with
-// no larger value before it and no smaller after (Hoare's selection, median-of-three
-// pivots), and returns s[k]. NaNs are not expected.
+// no larger value before it and no smaller after, and returns s[k]. NaNs are not
+// expected.
+//
+// Quickselect with partitions that do not branch on the data: each pass moves the
+// elements below the pivot to the front with a conditional increment rather than a
+// jump (the comparisons of a median's partition are coin tosses, which a branch
+// predictor cannot learn; Hoare's partition spent most of its time on mispredicted
+// jumps). When k falls at or above the pivot a second pass gathers the elements equal
+// to it, so ties (readings quantised to 0.1 nT give many) cost one pass, not quadratic
+// time. Pivots are the median of three, or of three medians of three on long ranges;
+// after 2 log2(n) + 8 passes without converging the range is sorted instead (a bound
+// only adversarial orders reach).
 func selectKth(s []float64, k int) float64 {
-	lo, hi := 0, len(s)-1
-	for hi > lo {
-		mid := lo + (hi-lo)/2
-		// Median of three to s[mid].
-		if s[mid] < s[lo] {
-			s[mid], s[lo] = s[lo], s[mid]
-		}
-		if s[hi] < s[lo] {
-			s[hi], s[lo] = s[lo], s[hi]
-		}
-		if s[hi] < s[mid] {
-			s[hi], s[mid] = s[mid], s[hi]
-		}
-		pivot := s[mid]
-		i, j := lo, hi
-		for i <= j {
-			for s[i] < pivot {
-				i++
-			}
-			for s[j] > pivot {
-				j--
-			}
-			if i <= j {
-				s[i], s[j] = s[j], s[i]
-				i++
-				j--
-			}
-		}
-		switch {
-		case k <= j:
-			hi = j
-		case k >= i:
-			lo = i
-		default:
+	return selectKthWithin(s, k, 2*bits.Len(uint(len(s)))+8)
+}
+
+// selectKthWithin is selectKth with at most budget partitioning passes before the
+// range is sorted.
+func selectKthWithin(s []float64, k, budget int) float64 {
+	lo, hi := 0, len(s) // the k-th lies in s[lo:hi]
+	for ; hi-lo > 16; budget-- {
+		if budget == 0 {
+			slices.Sort(s[lo:hi])
 			return s[k]
 		}
+		p := pivotOf(s[lo:hi])
+		lt := partitionBelow(s[lo:hi], p) + lo // s[lo:lt] < p <= s[lt:hi]
+		if k < lt {
+			hi = lt
+			continue
+		}
+		eq := partitionAtMost(s[lt:hi], p) + lt // s[lt:eq] == p < s[eq:hi]
+		if k < eq {
+			return s[k]
+		}
+		lo = eq
+	}
+	// A short range: insertion sort.
+	for i := lo + 1; i < hi; i++ {
+		x := s[i]
+		j := i
+		for j > lo && s[j-1] > x {
+			s[j] = s[j-1]
+			j--
+		}
+		s[j] = x
 	}
 	return s[k]
+}
+
+// partitionBelow moves the elements of s below p to its front, keeping the rest after
+// them, and returns their count. The loop has no data-dependent jump.
+func partitionBelow(s []float64, p float64) int {
+	n := 0
+	for i, x := range s {
+		s[i] = s[n]
+		s[n] = x
+		n += b2i(x < p)
+	}
+	return n
+}
+
+// partitionAtMost is partitionBelow for the elements at most p.
+func partitionAtMost(s []float64, p float64) int {
+	n := 0
+	for i, x := range s {
+		s[i] = s[n]
+		s[n] = x
+		n += b2i(x <= p)
+	}
+	return n
+}
+
+// b2i is 1 for true and 0 for false; the compiler turns it into a flag move, not a jump.
+func b2i(b bool) int {
+	var i int
+	if b {
+		i = 1
+	}
+	return i
+}
+
+// pivotOf returns a pivot value for selection in s (len(s) > 16): the median of the
+// first, middle and last elements, or on ranges of 128 and more Tukey's ninther (the
+// median of three such medians), which keeps the passes balanced on sorted and
+// reverse-sorted input as well as on random input.
+func pivotOf(s []float64) float64 {
+	n := len(s)
+	if n < 128 {
+		return med3(s[0], s[n/2], s[n-1])
+	}
+	e := n / 8
+	return med3(med3(s[0], s[e], s[2*e]), med3(s[n/2-e], s[n/2], s[n/2+e]), med3(s[n-1-2*e], s[n-1-e], s[n-1]))
+}
+
+func med3(a, b, c float64) float64 {
+	if a > b {
+		a, b = b, a
+	}
+	if b > c {
+		b = c
+	}
+	if a > b {
+		b = a
+	}
+	return b
 }
 
 // seed is a starting geometry for one line: horizontal position of a point over it,
