@@ -408,15 +408,23 @@ func (f *fitter) bestOf(starts []start, quick bool) (*candidate, error) {
 		keep, ls.maxIter = 1, roughIter
 	}
 	for _, st := range rs[:min(keep, len(rs))] {
+		x0, lsFull := st.x0, ls
 		if sub != f.sv {
-			// Screened on a subsample: polish on every reading.
+			// Screened on a subsample: iterate there first (see preIterate for when),
+			// then polish on every reading.
+			if x, ok := f.preIterate(sub, st.st, st.x0, ls); ok {
+				x0 = x
+				if f.rough {
+					lsFull.maxIter = 1
+				}
+			}
 			st.sp = newSeparable(f.sv.pts, f.sv.y, f.sv.nrhs, f.set.Background, f.sv.centroid, st.st.lines, st.st.dips)
 			st.sp.ptsLo, st.sp.ptsHi = f.sv.lo, f.sv.hi
 			st.sp.lmWork, st.sp.scr, st.sp.pd = &f.scr.lm, f.scr, &f.sv.proj
 		}
 		lmp, _ := st.sp.problem()
 		f.starts++
-		res, err := levmar(lmp, st.x0, ls)
+		res, err := levmar(lmp, x0, lsFull)
 		if err != nil {
 			if firstErr == nil {
 				firstErr = err
@@ -450,6 +458,40 @@ func (f *fitter) bestOf(starts []start, quick bool) (*candidate, error) {
 		return nil, firstErr
 	}
 	return best, nil
+}
+
+// noPreIterate turns preIterate off (for the test that compares the minima).
+var noPreIterate = false
+
+// preIterate runs the Levenberg-Marquardt iterations of a start on the screening
+// subsample of a large survey (about screenPoints readings) and returns where they end,
+// for the polish on every reading to finish from; ok is false when they fail. Most of a
+// start's iterations only find the basin of the minimum, which a few hundred readings
+// locate as well as thousands at a fraction of the cost; the polish then moves the
+// parameters by about their subsample uncertainty, which on a nearly linear problem
+// takes one or two iterations on all the readings. The answer is the full data's
+// minimum either way: the polish runs to the usual convergence tests.
+//
+// Only lines that are expected to be there are pre-iterated: one line, or the number
+// the caller asked for. A line the automatic count tries beyond those in the data fits
+// the subsample's noise, which puts it far from where the full data would, and the
+// polish then crawls along a flat valley (163 iterations instead of 15 on a one-line
+// survey fitted with two). Magnetised objects are not either: a subsample can step
+// over a small one's field.
+func (f *fitter) preIterate(sub *survey, st start, x0 []float64, ls lmSettings) (x []float64, ok bool) {
+	if noPreIterate || len(st.dips) > 0 || len(st.lines) > 1 && len(st.lines) != f.set.Count {
+		return nil, false
+	}
+	geom, dips := append([]lineGeom(nil), st.lines...), append([]dipGeom(nil), st.dips...)
+	sp := newSeparable(sub.pts, sub.y, sub.nrhs, f.set.Background, f.sv.centroid, geom, dips)
+	sp.ptsLo, sp.ptsHi = sub.lo, sub.hi
+	sp.lmWork, sp.scr, sp.pd = &f.scr.lm, f.scr, &sub.proj
+	lmp, _ := sp.problem()
+	res, err := levmar(lmp, x0, ls)
+	if err != nil || !res.status.Converged() && res.status != MaxIterations {
+		return nil, false
+	}
+	return res.x, true
 }
 
 // noiseFloor returns the reading noise per axis: Problem.Sigma, or an estimate from the
