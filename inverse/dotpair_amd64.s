@@ -2,7 +2,10 @@
 
 #include "textflag.h"
 
-// func dotPair(x, y, z []float64) (xy, xz float64)
+// The SSE2 loops of dotPair and dotQuad (dotpair_amd64.go), for processors without
+// AVX2 (with it, housekern_amd64.s has the same sums in 256-bit registers).
+
+// func dotPairSSE2(x, y, z []float64) (xy, xz float64)
 //
 // Two inner products sharing x, each summed exactly as gonum's DotUnitary on amd64
 // sums one (four partial sums over the elements i mod 4, held in the lanes of two
@@ -11,7 +14,7 @@
 // floats.Dot(x, y) and floats.Dot(x, z). Loading x once for both and running four
 // addition chains instead of two, it takes about the time of one. len(y) and len(z)
 // must be at least len(x).
-TEXT ·dotPair(SB), NOSPLIT, $0-88
+TEXT ·dotPairSSE2(SB), NOSPLIT, $0-88
 	MOVQ x_base+0(FP), R8
 	MOVQ x_len+8(FP), DI
 	MOVQ y_base+24(FP), R9
@@ -72,11 +75,11 @@ end:
 	MOVSD    X9, xz+80(FP)
 	RET
 
-// func dotQuad(x, y0, y1, y2, y3 []float64) (s0, s1, s2, s3 float64)
+// func dotQuadSSE2(x, y0, y1, y2, y3 []float64) (s0, s1, s2, s3 float64)
 //
 // Four inner products sharing x, each summed exactly as DotUnitary sums one (see
-// dotPair): eight addition chains, x loaded once.
-TEXT ·dotQuad(SB), NOSPLIT, $0-152
+// dotPairSSE2): eight addition chains, x loaded once.
+TEXT ·dotQuadSSE2(SB), NOSPLIT, $0-152
 	MOVQ  x_base+0(FP), R8
 	MOVQ  x_len+8(FP), DI
 	MOVQ  y0_base+24(FP), R9

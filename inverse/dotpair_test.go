@@ -12,8 +12,13 @@ import (
 // the inner products of gonum's floats.Dot, which the Householder kernels relied on before: for
 // every length from 0 to 67 (all remainders of the four-element blocks) and a long one,
 // on values spread over many orders of magnitude and of both signs, where a different
-// order of summation would show in the last bits.
+// order of summation would show in the last bits. Both the SSE2 loops and, where the
+// processor has AVX2, the AVX2 ones are checked.
 func TestDotPairMatchesGonum(t *testing.T) {
+	forEachHousePath(t, testDotPairMatchesGonum)
+}
+
+func testDotPairMatchesGonum(t *testing.T) {
 	rng := rand.New(rand.NewPCG(21, 22))
 	val := func() float64 { return rng.NormFloat64() * math.Pow(10, 8*rng.Float64()-4) }
 	lengths := []int{1215}

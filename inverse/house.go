@@ -1,10 +1,6 @@
 package inverse
 
-import (
-	"math"
-
-	"gonum.org/v1/gonum/floats"
-)
+import "math"
 
 // Dense kernels for the small problems of the fits: Householder QR on column-major
 // storage and a one-sided Jacobi singular value decomposition. The fits factor tall,
@@ -27,6 +23,10 @@ import (
 func houseQR(a []float64, m, n int, tau []float64) {
 	_ = a[m*n-1]
 	_ = tau[n-1]
+	if useAVX2 {
+		houseQRAhead(a, m, n, tau)
+		return
+	}
 	for j := range n {
 		col := a[j*m+j : (j+1)*m]
 		tau[j] = houseGen(col)
@@ -46,8 +46,105 @@ func houseQR(a []float64, m, n int, tau []float64) {
 	}
 }
 
+// houseQRAhead is houseQR with each step's work reordered so that the columns are read
+// once per reflector instead of twice, for the same results bit for bit. Step j first
+// applies H_j to column j+1 alone, taking that column's squared norm below row j+1 in
+// the same pass, and generates reflector j+1 from it; it then applies H_j to the
+// columns beyond, forming in the same pass their inner products with reflector j+1,
+// which step j+1 needs before it can update them. Every column still sees the same
+// operations on the same values in the same order (the columns are independent of one
+// another within a step), only the passes over memory are fewer; the fused passes
+// (axpyDot4 and its kin) sum each inner product as floats.Dot does. It pays where
+// those passes are AVX2 loops; elsewhere houseQR keeps its plain order.
+func houseQRAhead(a []float64, m, n int, tau []float64) {
+	var dbuf [32]float64
+	d := dbuf[:]
+	if n > len(d) {
+		d = make([]float64, n)
+	}
+	// have: d[k], k > j, hold reflector j's inner products with the columns k (from row
+	// j+1), formed by step j-1.
+	have := false
+	tau[0] = houseGen(a[:m])
+	for j := range n {
+		v := a[j*m+j : (j+1)*m]
+		t := tau[j]
+		if t == 0 {
+			if j+1 < n {
+				tau[j+1] = houseGen(a[(j+1)*m+j+1 : (j+2)*m])
+			}
+			have = false
+			continue
+		}
+		if !have {
+			k := j + 1
+			for ; k+3 < n; k += 4 {
+				d[k], d[k+1], d[k+2], d[k+3] = dotQuad(v[1:], a[k*m+j+1:(k+1)*m], a[(k+1)*m+j+1:(k+2)*m], a[(k+2)*m+j+1:(k+3)*m], a[(k+3)*m+j+1:(k+4)*m])
+			}
+			for ; k+1 < n; k += 2 {
+				d[k], d[k+1] = dotPair(v[1:], a[k*m+j+1:(k+1)*m], a[(k+1)*m+j+1:(k+2)*m])
+			}
+			if k < n {
+				d[k] = houseDot(v[1:], a[k*m+j+1:(k+1)*m])
+			}
+		}
+		if j+1 == n {
+			break
+		}
+		// Column j+1, then reflector j+1 from it (the column below row j+1).
+		c := a[(j+1)*m+j : (j+2)*m]
+		s := (c[0] + d[j+1]) * t
+		c[0] -= s
+		sq := axpySelfDot(v[1:], -s, c[1:])
+		tau[j+1] = houseGenSq(c[1:], sq)
+		w := c[2:] // reflector j+1 below its leading 1
+		have = tau[j+1] != 0
+		k := j + 2
+		for ; k+3 < n; k += 4 {
+			c0, c1 := a[k*m+j:(k+1)*m], a[(k+1)*m+j:(k+2)*m]
+			c2, c3 := a[(k+2)*m+j:(k+3)*m], a[(k+3)*m+j:(k+4)*m]
+			s0 := (c0[0] + d[k]) * t
+			s1 := (c1[0] + d[k+1]) * t
+			s2 := (c2[0] + d[k+2]) * t
+			s3 := (c3[0] + d[k+3]) * t
+			c0[0] -= s0
+			c1[0] -= s1
+			c2[0] -= s2
+			c3[0] -= s3
+			if have {
+				d[k], d[k+1], d[k+2], d[k+3] = axpyDot4(v[1:], w, -s0, -s1, -s2, -s3, c0[1:], c1[1:], c2[1:], c3[1:])
+			} else {
+				addScaled4(v[1:], -s0, -s1, -s2, -s3, c0[1:], c1[1:], c2[1:], c3[1:])
+			}
+		}
+		for ; k+1 < n; k += 2 {
+			c0, c1 := a[k*m+j:(k+1)*m], a[(k+1)*m+j:(k+2)*m]
+			s0 := (c0[0] + d[k]) * t
+			s1 := (c1[0] + d[k+1]) * t
+			c0[0] -= s0
+			c1[0] -= s1
+			if have {
+				d[k], d[k+1] = axpyDot2(v[1:], w, -s0, -s1, c0[1:], c1[1:])
+			} else {
+				addScaled2(v[1:], -s0, -s1, c0[1:], c1[1:])
+			}
+		}
+		if k < n {
+			c0 := a[k*m+j : (k+1)*m]
+			s0 := (c0[0] + d[k]) * t
+			c0[0] -= s0
+			if have {
+				d[k] = axpyDot(v[1:], w, -s0, c0[1:])
+			} else {
+				addScaled(c0[1:], -s0, v[1:])
+			}
+		}
+	}
+}
+
 // houseApply2 is houseApply on two columns at once, with the same results: the two
-// inner products with v are formed in one pass (dotPair).
+// inner products with v are formed in one pass (dotPair), and so are the two updates
+// (addScaled2).
 func houseApply2(v []float64, tau float64, c, d []float64) {
 	c, d = c[:len(v)], d[:len(v)]
 	var sc, sd float64
@@ -59,13 +156,13 @@ func houseApply2(v []float64, tau float64, c, d []float64) {
 	c[0] -= sc
 	d[0] -= sd
 	if len(v) > 1 {
-		floats.AddScaled(c[1:], -sc, v[1:])
-		floats.AddScaled(d[1:], -sd, v[1:])
+		addScaled2(v[1:], -sc, -sd, c[1:], d[1:])
 	}
 }
 
 // houseApply4 is houseApply on four columns at once, with the same results: the four
-// inner products with v are formed in one pass (dotQuad).
+// inner products with v are formed in one pass (dotQuad), and so are the four updates
+// (addScaled4).
 func houseApply4(v []float64, tau float64, c0, c1, c2, c3 []float64) {
 	n := len(v)
 	c0, c1, c2, c3 = c0[:n], c1[:n], c2[:n], c3[:n]
@@ -82,16 +179,17 @@ func houseApply4(v []float64, tau float64, c0, c1, c2, c3 []float64) {
 	c2[0] -= s2
 	c3[0] -= s3
 	if n > 1 {
-		floats.AddScaled(c0[1:], -s0, v[1:])
-		floats.AddScaled(c1[1:], -s1, v[1:])
-		floats.AddScaled(c2[1:], -s2, v[1:])
-		floats.AddScaled(c3[1:], -s3, v[1:])
+		addScaled4(v[1:], -s0, -s1, -s2, -s3, c0[1:], c1[1:], c2[1:], c3[1:])
 	}
 }
 
 // houseApplyQT overwrites the k columns of the m x k column-major matrix c with Q^T c,
 // Q being the factor left in a and tau by houseQR(a, m, n, tau).
 func houseApplyQT(a []float64, m, n int, tau []float64, c []float64, k int) {
+	if useAVX2 {
+		houseApplyQTAhead(a, m, n, tau, c, k)
+		return
+	}
 	col := 0
 	for ; col+3 < k; col += 4 {
 		// Four columns at a time; each sees the reflectors in the same order as alone.
@@ -122,11 +220,115 @@ func houseApplyQT(a []float64, m, n int, tau []float64, c []float64, k int) {
 	}
 }
 
+// houseApplyQTAhead is houseApplyQT with one pass over the columns per reflector
+// instead of two, for the same results bit for bit (as houseQRAhead): applying H_j
+// forms in the same pass the columns' inner products with reflector j+1.
+func houseApplyQTAhead(a []float64, m, n int, tau []float64, c []float64, k int) {
+	// next returns reflector j+1 below its leading 1, or nil if there is none to apply.
+	next := func(j int) []float64 {
+		if j+1 < n && tau[j+1] != 0 {
+			return a[(j+1)*m+j+2 : (j+2)*m]
+		}
+		return nil
+	}
+	col := 0
+	for ; col+3 < k; col += 4 {
+		c0, c1 := c[col*m:(col+1)*m], c[(col+1)*m:(col+2)*m]
+		c2, c3 := c[(col+2)*m:(col+3)*m], c[(col+3)*m:(col+4)*m]
+		var d0, d1, d2, d3 float64
+		have := false // d0..d3 are reflector j's inner products with the columns
+		for j := range n {
+			t := tau[j]
+			if t == 0 {
+				have = false
+				continue
+			}
+			v := a[j*m+j+1 : (j+1)*m]
+			if !have {
+				d0, d1, d2, d3 = dotQuad(v, c0[j+1:], c1[j+1:], c2[j+1:], c3[j+1:])
+			}
+			s0 := (c0[j] + d0) * t
+			s1 := (c1[j] + d1) * t
+			s2 := (c2[j] + d2) * t
+			s3 := (c3[j] + d3) * t
+			c0[j] -= s0
+			c1[j] -= s1
+			c2[j] -= s2
+			c3[j] -= s3
+			if w := next(j); w != nil {
+				d0, d1, d2, d3 = axpyDot4(v, w, -s0, -s1, -s2, -s3, c0[j+1:], c1[j+1:], c2[j+1:], c3[j+1:])
+				have = true
+			} else {
+				addScaled4(v, -s0, -s1, -s2, -s3, c0[j+1:], c1[j+1:], c2[j+1:], c3[j+1:])
+				have = false
+			}
+		}
+	}
+	for ; col+1 < k; col += 2 {
+		c0, c1 := c[col*m:(col+1)*m], c[(col+1)*m:(col+2)*m]
+		var d0, d1 float64
+		have := false
+		for j := range n {
+			t := tau[j]
+			if t == 0 {
+				have = false
+				continue
+			}
+			v := a[j*m+j+1 : (j+1)*m]
+			if !have {
+				d0, d1 = dotPair(v, c0[j+1:], c1[j+1:])
+			}
+			s0 := (c0[j] + d0) * t
+			s1 := (c1[j] + d1) * t
+			c0[j] -= s0
+			c1[j] -= s1
+			if w := next(j); w != nil {
+				d0, d1 = axpyDot2(v, w, -s0, -s1, c0[j+1:], c1[j+1:])
+				have = true
+			} else {
+				addScaled2(v, -s0, -s1, c0[j+1:], c1[j+1:])
+				have = false
+			}
+		}
+	}
+	for ; col < k; col++ {
+		c0 := c[col*m : (col+1)*m]
+		var d0 float64
+		have := false
+		for j := range n {
+			t := tau[j]
+			if t == 0 {
+				have = false
+				continue
+			}
+			v := a[j*m+j+1 : (j+1)*m]
+			if !have {
+				d0 = houseDot(v, c0[j+1:])
+			}
+			s0 := (c0[j] + d0) * t
+			c0[j] -= s0
+			if w := next(j); w != nil {
+				d0 = axpyDot(v, w, -s0, c0[j+1:])
+				have = true
+			} else {
+				addScaled(c0[j+1:], -s0, v)
+				have = false
+			}
+		}
+	}
+}
+
 // houseGen generates the reflector that maps x onto beta e_0 (LAPACK dlarfg): on return
 // x[0] = beta, x[1:] holds the essential part of v, and the result is tau (0 when x[1:]
 // is already zero).
 func houseGen(x []float64) float64 {
-	xn := norm2(x[1:])
+	return houseGenSq(x, houseDot(x[1:], x[1:]))
+}
+
+// houseGenSq is houseGen given sq = floats.Dot(x[1:], x[1:]), the sum norm2 begins
+// with.
+func houseGenSq(x []float64, sq float64) float64 {
+	xn := norm2Sq(x[1:], sq)
 	if xn == 0 {
 		return 0
 	}
@@ -134,7 +336,7 @@ func houseGen(x []float64) float64 {
 	beta := -math.Copysign(math.Hypot(alpha, xn), alpha)
 	tau := (beta - alpha) / beta
 	s := 1 / (alpha - beta) // |alpha - beta| = |alpha| + |beta|: no cancellation
-	floats.Scale(s, x[1:])
+	scaleVec(s, x[1:])
 	x[0] = beta
 	return tau
 }
@@ -147,7 +349,7 @@ func houseApply(v []float64, tau float64, c []float64) {
 	s *= tau
 	c[0] -= s
 	if len(v) > 1 {
-		floats.AddScaled(c[1:], -s, v[1:])
+		addScaled(c[1:], -s, v[1:])
 	}
 }
 
@@ -156,16 +358,21 @@ func dotFrom1(a, b []float64) float64 {
 	if len(a) < 2 {
 		return 0
 	}
-	return floats.Dot(a[1:], b[1:len(a)])
+	return houseDot(a[1:], b[1:len(a)])
 }
 
-// The vector kernels (dot products, axpy) go to gonum's floats package, whose
+// The vector kernels (dot products, axpy, scaling) are gonum's floats package, whose
 // assembly loops are two to four times faster than plain Go loops at these lengths
-// (hundreds to thousands of elements).
+// (hundreds to thousands of elements), or on amd64 with AVX2 loops that give the same
+// results bit for bit (housekern_amd64.go).
 
 // norm2 returns the Euclidean norm of x without undue overflow or underflow.
 func norm2(x []float64) float64 {
-	s := floats.Dot(x, x)
+	return norm2Sq(x, houseDot(x, x))
+}
+
+// norm2Sq is norm2 given s = floats.Dot(x, x).
+func norm2Sq(x []float64, s float64) float64 {
 	if s > 1e-280 && s < 1e280 {
 		return math.Sqrt(s)
 	}
