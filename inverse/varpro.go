@@ -332,10 +332,16 @@ func (sp *separable) fillRaw(phi []float64, rs, cs int, pos []int, pts [][3]floa
 
 // lineColumn writes the unweighted basis column of the line through p0 along the unit
 // vector u at the points pts (3 rows each) into col: the loop of fillRaw for a contiguous
-// column, with the vectors in scalars and no bounds checks in the loop.
+// column, with the vectors in scalars and no bounds checks in the loop. Where the
+// assembly kernel is in use it takes the readings four at a time (same values bit for
+// bit) and the loop does the last len(pts) mod 4.
 func lineColumn(col []float64, u, p0 [3]float64, pts [][3]float64) {
 	u0, u1, u2 := u[0], u[1], u[2]
 	p00, p01, p02 := p0[0], p0[1], p0[2]
+	if n := min(len(pts), len(col)/3) &^ 3; n > 0 && useLineKern {
+		lineColumnAVX2(&col[0], &pts[0][0], n, u0, u1, u2, p00, p01, p02, nT*k2pi)
+		col, pts = col[3*n:], pts[n:]
+	}
 	for i := range pts {
 		if len(col) < 3 {
 			break
@@ -783,7 +789,9 @@ func (sp *separable) dLineFast(out [][2][]float64, dirs, uxv [][3]float64, isDir
 // horizontal n0, height (direction up), then optionally the azimuth (its direction
 // derivative horizontal) and the dip. It drops the products with the known zero and
 // unit components of those directions from dLineFast's expressions (x*0 + y = y, so
-// the values are the same) and keeps the loop-invariant vectors in scalars.
+// the values are the same) and keeps the loop-invariant vectors in scalars. Where the
+// assembly kernel is in use it takes the readings four at a time (same values bit for
+// bit) and the loop does the last len(pts) mod 4.
 func (sp *separable) dLineLevel(out [][2][]float64, dirs, uxv [][3]float64, u, p0 [3]float64, c float64, pts [][3]float64) {
 	nd := len(dirs)
 	n3 := 3 * len(pts)
@@ -802,7 +810,20 @@ func (sp *separable) dLineLevel(out [][2][]float64, dirs, uxv [][3]float64, u, p
 	cs0, cs1, cs2 := uxv[0][0], uxv[0][1], uxv[0][2]
 	cz0, cz1, cz2 := uxv[1][0], uxv[1][1], uxv[1][2]
 	kc := c * nT * k2pi
-	for i := range pts {
+	i0 := 0
+	if n := len(pts) &^ 3; n > 0 && useLineKern {
+		var pa, pd *float64
+		if ca != nil {
+			pa = &ca[0]
+		}
+		if cd != nil {
+			pd = &cd[0]
+		}
+		dLineLevelAVX2(&cs[0], &cz[0], pa, pd, &pts[0][0], n, nd, u0, u1, u2, p00, p01, p02,
+			n00, n01, cs0, cs1, cs2, cz0, cz1, cz2, va[0], va[1], vd[0], vd[1], vd[2], kc)
+		i0 = n
+	}
+	for i := i0; i < len(pts); i++ {
 		r := &pts[i]
 		d0, d1, d2 := r[0]-p00, r[1]-p01, r[2]-p02
 		du := d0*u0 + d1*u1 + d2*u2
