@@ -51,7 +51,8 @@ func houseQR(a []float64, m, n int, tau []float64) {
 // applies H_j to column j+1 alone, taking that column's squared norm below row j+1 in
 // the same pass, and generates reflector j+1 from it; it then applies H_j to the
 // columns beyond, forming in the same pass their inner products with reflector j+1,
-// which step j+1 needs before it can update them. Every column still sees the same
+// which step j+1 needs before it can update them (the first such pass also does
+// houseGen's last one, the scaling of reflector j+1). Every column still sees the same
 // operations on the same values in the same order (the columns are independent of one
 // another within a step), only the passes over memory are fewer; the fused passes
 // (axpyDot4 and its kin) sum each inner product as floats.Dot does. It pays where
@@ -91,14 +92,17 @@ func houseQRAhead(a []float64, m, n int, tau []float64) {
 		if j+1 == n {
 			break
 		}
-		// Column j+1, then reflector j+1 from it (the column below row j+1).
+		// Column j+1, then reflector j+1 from it (the column below row j+1); the
+		// reflector's scaling is done by the first pass that reads it.
 		c := a[(j+1)*m+j : (j+2)*m]
 		s := (c[0] + d[j+1]) * t
 		c[0] -= s
 		sq := axpySelfDot(v[1:], -s, c[1:])
-		tau[j+1] = houseGenSq(c[1:], sq)
-		w := c[2:] // reflector j+1 below its leading 1
+		var ws float64
+		tau[j+1], ws = houseGenUnscaled(c[1:], sq)
+		w := c[2:] // reflector j+1 below its leading 1, still to be scaled by ws
 		have = tau[j+1] != 0
+		scaled := !have // whether w is done (an empty reflector is not scaled)
 		k := j + 2
 		for ; k+3 < n; k += 4 {
 			c0, c1 := a[k*m+j:(k+1)*m], a[(k+1)*m+j:(k+2)*m]
@@ -111,7 +115,10 @@ func houseQRAhead(a []float64, m, n int, tau []float64) {
 			c1[0] -= s1
 			c2[0] -= s2
 			c3[0] -= s3
-			if have {
+			if !scaled {
+				d[k], d[k+1], d[k+2], d[k+3] = axpyDotScaled4(v[1:], w, ws, -s0, -s1, -s2, -s3, c0[1:], c1[1:], c2[1:], c3[1:])
+				scaled = true
+			} else if have {
 				d[k], d[k+1], d[k+2], d[k+3] = axpyDot4(v[1:], w, -s0, -s1, -s2, -s3, c0[1:], c1[1:], c2[1:], c3[1:])
 			} else {
 				addScaled4(v[1:], -s0, -s1, -s2, -s3, c0[1:], c1[1:], c2[1:], c3[1:])
@@ -123,7 +130,10 @@ func houseQRAhead(a []float64, m, n int, tau []float64) {
 			s1 := (c1[0] + d[k+1]) * t
 			c0[0] -= s0
 			c1[0] -= s1
-			if have {
+			if !scaled {
+				d[k], d[k+1] = axpyDotScaled2(v[1:], w, ws, -s0, -s1, c0[1:], c1[1:])
+				scaled = true
+			} else if have {
 				d[k], d[k+1] = axpyDot2(v[1:], w, -s0, -s1, c0[1:], c1[1:])
 			} else {
 				addScaled2(v[1:], -s0, -s1, c0[1:], c1[1:])
@@ -133,11 +143,17 @@ func houseQRAhead(a []float64, m, n int, tau []float64) {
 			c0 := a[k*m+j : (k+1)*m]
 			s0 := (c0[0] + d[k]) * t
 			c0[0] -= s0
-			if have {
+			if !scaled {
+				d[k] = axpyDotScaled(v[1:], w, ws, -s0, c0[1:])
+				scaled = true
+			} else if have {
 				d[k] = axpyDot(v[1:], w, -s0, c0[1:])
 			} else {
 				addScaled(c0[1:], -s0, v[1:])
 			}
+		}
+		if !scaled {
+			scaleVec(ws, w) // no column beyond to carry it
 		}
 	}
 }
@@ -328,17 +344,26 @@ func houseGen(x []float64) float64 {
 // houseGenSq is houseGen given sq = floats.Dot(x[1:], x[1:]), the sum norm2 begins
 // with.
 func houseGenSq(x []float64, sq float64) float64 {
+	tau, s := houseGenUnscaled(x, sq)
+	if tau != 0 {
+		scaleVec(s, x[1:])
+	}
+	return tau
+}
+
+// houseGenUnscaled is houseGenSq but for its last pass, the scaling of x[1:] by s,
+// which it leaves to the caller when tau is not 0 (it is then 1 to 2, or NaN).
+func houseGenUnscaled(x []float64, sq float64) (tau, s float64) {
 	xn := norm2Sq(x[1:], sq)
 	if xn == 0 {
-		return 0
+		return 0, 0
 	}
 	alpha := x[0]
 	beta := -math.Copysign(math.Hypot(alpha, xn), alpha)
-	tau := (beta - alpha) / beta
-	s := 1 / (alpha - beta) // |alpha - beta| = |alpha| + |beta|: no cancellation
-	scaleVec(s, x[1:])
+	tau = (beta - alpha) / beta
+	s = 1 / (alpha - beta) // |alpha - beta| = |alpha| + |beta|: no cancellation
 	x[0] = beta
-	return tau
+	return tau, s
 }
 
 // houseApply applies H = I - tau v v^T to c, with v[0] = 1 implied (v[0] is not read)

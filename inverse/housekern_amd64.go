@@ -136,6 +136,55 @@ func axpyDot4(v, w []float64, a0, a1, a2, a3 float64, c0, c1, c2, c3 []float64) 
 	return dotQuad(w, c0[1:], c1[1:], c2[1:], c3[1:])
 }
 
+// axpyDotScaled does floats.Scale(ws, w[:n-1]), n = len(v), and then axpyDot(v, w, a,
+// c) with the scaled w, in one pass.
+func axpyDotScaled(v, w []float64, ws, a float64, c []float64) float64 {
+	n := len(v)
+	c = c[:n]
+	if n < 2 {
+		addScaled(c, a, v)
+		return 0
+	}
+	w = w[:n-1]
+	if useAVX2 {
+		return axpyDotScaled1AVX2(v, w, ws, a, c)
+	}
+	floats.Scale(ws, w)
+	return axpyDot(v, w, a, c)
+}
+
+// axpyDotScaled2 is axpyDotScaled on two columns in one pass.
+func axpyDotScaled2(v, w []float64, ws, a0, a1 float64, c0, c1 []float64) (d0, d1 float64) {
+	n := len(v)
+	c0, c1 = c0[:n], c1[:n]
+	if n < 2 {
+		addScaled2(v, a0, a1, c0, c1)
+		return 0, 0
+	}
+	w = w[:n-1]
+	if useAVX2 {
+		return axpyDotScaled2AVX2(v, w, ws, a0, a1, c0, c1)
+	}
+	floats.Scale(ws, w)
+	return axpyDot2(v, w, a0, a1, c0, c1)
+}
+
+// axpyDotScaled4 is axpyDotScaled on four columns in one pass.
+func axpyDotScaled4(v, w []float64, ws, a0, a1, a2, a3 float64, c0, c1, c2, c3 []float64) (d0, d1, d2, d3 float64) {
+	n := len(v)
+	c0, c1, c2, c3 = c0[:n], c1[:n], c2[:n], c3[:n]
+	if n < 2 {
+		addScaled4(v, a0, a1, a2, a3, c0, c1, c2, c3)
+		return 0, 0, 0, 0
+	}
+	w = w[:n-1]
+	if useAVX2 {
+		return axpyDotScaled4AVX2(v, w, ws, a0, a1, a2, a3, c0, c1, c2, c3)
+	}
+	floats.Scale(ws, w)
+	return axpyDot4(v, w, a0, a1, a2, a3, c0, c1, c2, c3)
+}
+
 //go:noescape
 func dotAVX2(x, y []float64) (sum float64)
 
@@ -168,3 +217,12 @@ func axpyDot2AVX2(v, w []float64, a0, a1 float64, c0, c1 []float64) (d0, d1 floa
 
 //go:noescape
 func axpyDot4AVX2(v, w []float64, a0, a1, a2, a3 float64, c0, c1, c2, c3 []float64) (d0, d1, d2, d3 float64)
+
+//go:noescape
+func axpyDotScaled1AVX2(v, w []float64, ws, a0 float64, c0 []float64) (d0 float64)
+
+//go:noescape
+func axpyDotScaled2AVX2(v, w []float64, ws, a0, a1 float64, c0, c1 []float64) (d0, d1 float64)
+
+//go:noescape
+func axpyDotScaled4AVX2(v, w []float64, ws, a0, a1, a2, a3 float64, c0, c1, c2, c3 []float64) (d0, d1, d2, d3 float64)

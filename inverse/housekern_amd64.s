@@ -949,3 +949,419 @@ f4end:
 	VMOVSD     X0, d3+200(FP)
 	VZEROUPPER
 	RET
+
+// The kernels below are those above with the next reflector's scaling folded in: w is
+// first scaled in place, w[i] = w[i]*ws as floats.Scale(ws, w) does it, and the scaled
+// values are the ones the inner products take (houseGen's last pass, done here by the
+// first pass that reads the new reflector).
+
+// func axpyDotScaled1AVX2(v, w []float64, ws, a0 float64, c0 []float64) (d0 float64)
+//
+// floats.Scale(ws, w[:len(v)-1]), then axpyDot1AVX2 with the scaled w, in one pass.
+TEXT ·axpyDotScaled1AVX2(SB), NOSPLIT, $0-96
+	MOVQ         v_base+0(FP), R8
+	MOVQ         v_len+8(FP), DI
+	MOVQ         w_base+24(FP), R13
+	VBROADCASTSD a0+56(FP), Y12
+	MOVQ         c0_base+64(FP), R9
+	VXORPD       Y8, Y8, Y8
+	VXORPD       X4, X4, X4
+	TESTQ        DI, DI
+	JZ           g1end
+	VBROADCASTSD ws+48(FP), Y7
+
+	// Element 0: the update alone.
+	VMOVSD (R8), X0
+	VMULSD X12, X0, X2
+	VADDSD (R9), X2, X2
+	VMOVSD X2, (R9)
+	ADDQ   $8, R8
+	ADDQ   $8, R9
+	XORQ   SI, SI
+	SUBQ   $9, DI
+	JL     g1four
+
+g1loop:
+	// Two blocks of four a turn, both into the same sums: element i, then i+4.
+	VMOVUPD 0(R8)(SI*8), Y0
+	VMOVUPD 0(R13)(SI*8), Y1
+	VMULPD  Y7, Y1, Y1
+	VMOVUPD Y1, 0(R13)(SI*8)
+	VMULPD  Y12, Y0, Y2
+	VADDPD  0(R9)(SI*8), Y2, Y2
+	VMOVUPD Y2, 0(R9)(SI*8)
+	VMULPD  Y2, Y1, Y3
+	VADDPD  Y3, Y8, Y8
+	VMOVUPD 32(R8)(SI*8), Y0
+	VMOVUPD 32(R13)(SI*8), Y1
+	VMULPD  Y7, Y1, Y1
+	VMOVUPD Y1, 32(R13)(SI*8)
+	VMULPD  Y12, Y0, Y2
+	VADDPD  32(R9)(SI*8), Y2, Y2
+	VMOVUPD Y2, 32(R9)(SI*8)
+	VMULPD  Y2, Y1, Y3
+	VADDPD  Y3, Y8, Y8
+	ADDQ    $8, SI
+	SUBQ    $8, DI
+	JGE     g1loop
+
+g1four:
+	ADDQ    $8, DI
+	CMPQ    DI, $4
+	JL      g1tail
+	VMOVUPD 0(R8)(SI*8), Y0
+	VMOVUPD 0(R13)(SI*8), Y1
+	VMULPD  Y7, Y1, Y1
+	VMOVUPD Y1, 0(R13)(SI*8)
+	VMULPD  Y12, Y0, Y2
+	VADDPD  0(R9)(SI*8), Y2, Y2
+	VMOVUPD Y2, 0(R9)(SI*8)
+	VMULPD  Y2, Y1, Y3
+	VADDPD  Y3, Y8, Y8
+	ADDQ    $4, SI
+	SUBQ    $4, DI
+
+g1tail:
+	VEXTRACTF128 $1, Y8, X4
+	TESTQ        DI, DI
+	JZ           g1end
+
+g1one:
+	VMOVSD 0(R8)(SI*8), X0
+	VMOVSD 0(R13)(SI*8), X1
+	VMULSD ws+48(FP), X1, X1
+	VMOVSD X1, 0(R13)(SI*8)
+	VMULSD X12, X0, X2
+	VADDSD 0(R9)(SI*8), X2, X2
+	VMOVSD X2, 0(R9)(SI*8)
+	VMULSD X2, X1, X3
+	VADDSD X3, X8, X8
+	INCQ   SI
+	DECQ   DI
+	JNZ    g1one
+
+g1end:
+	VADDPD     X4, X8, X8
+	VUNPCKHPD  X8, X8, X0
+	VADDSD     X8, X0, X0
+	VMOVSD     X0, d0+88(FP)
+	VZEROUPPER
+	RET
+
+// func axpyDotScaled2AVX2(v, w []float64, ws, a0, a1 float64, c0, c1 []float64) (d0, d1 float64)
+//
+// floats.Scale(ws, w[:len(v)-1]), then axpyDot2AVX2 with the scaled w, in one pass.
+TEXT ·axpyDotScaled2AVX2(SB), NOSPLIT, $0-136
+	MOVQ         v_base+0(FP), R8
+	MOVQ         v_len+8(FP), DI
+	MOVQ         w_base+24(FP), R13
+	VBROADCASTSD a0+56(FP), Y12
+	VBROADCASTSD a1+64(FP), Y13
+	MOVQ         c0_base+72(FP), R9
+	MOVQ         c1_base+96(FP), R10
+	VXORPD       Y8, Y8, Y8
+	VXORPD       Y9, Y9, Y9
+	VXORPD       X4, X4, X4
+	VXORPD       X5, X5, X5
+	TESTQ        DI, DI
+	JZ           g2end
+	VBROADCASTSD ws+48(FP), Y7
+
+	// Element 0: the update alone.
+	VMOVSD (R8), X0
+	VMULSD X12, X0, X2
+	VADDSD (R9), X2, X2
+	VMOVSD X2, (R9)
+	VMULSD X13, X0, X2
+	VADDSD (R10), X2, X2
+	VMOVSD X2, (R10)
+	ADDQ   $8, R8
+	ADDQ   $8, R9
+	ADDQ   $8, R10
+	XORQ   SI, SI
+	SUBQ   $9, DI
+	JL     g2four
+
+g2loop:
+	// Two blocks of four a turn, both into the same sums: element i, then i+4.
+	VMOVUPD 0(R8)(SI*8), Y0
+	VMOVUPD 0(R13)(SI*8), Y1
+	VMULPD  Y7, Y1, Y1
+	VMOVUPD Y1, 0(R13)(SI*8)
+	VMULPD  Y12, Y0, Y2
+	VADDPD  0(R9)(SI*8), Y2, Y2
+	VMOVUPD Y2, 0(R9)(SI*8)
+	VMULPD  Y2, Y1, Y3
+	VADDPD  Y3, Y8, Y8
+	VMULPD  Y13, Y0, Y2
+	VADDPD  0(R10)(SI*8), Y2, Y2
+	VMOVUPD Y2, 0(R10)(SI*8)
+	VMULPD  Y2, Y1, Y3
+	VADDPD  Y3, Y9, Y9
+	VMOVUPD 32(R8)(SI*8), Y0
+	VMOVUPD 32(R13)(SI*8), Y1
+	VMULPD  Y7, Y1, Y1
+	VMOVUPD Y1, 32(R13)(SI*8)
+	VMULPD  Y12, Y0, Y2
+	VADDPD  32(R9)(SI*8), Y2, Y2
+	VMOVUPD Y2, 32(R9)(SI*8)
+	VMULPD  Y2, Y1, Y3
+	VADDPD  Y3, Y8, Y8
+	VMULPD  Y13, Y0, Y2
+	VADDPD  32(R10)(SI*8), Y2, Y2
+	VMOVUPD Y2, 32(R10)(SI*8)
+	VMULPD  Y2, Y1, Y3
+	VADDPD  Y3, Y9, Y9
+	ADDQ    $8, SI
+	SUBQ    $8, DI
+	JGE     g2loop
+
+g2four:
+	ADDQ    $8, DI
+	CMPQ    DI, $4
+	JL      g2tail
+	VMOVUPD 0(R8)(SI*8), Y0
+	VMOVUPD 0(R13)(SI*8), Y1
+	VMULPD  Y7, Y1, Y1
+	VMOVUPD Y1, 0(R13)(SI*8)
+	VMULPD  Y12, Y0, Y2
+	VADDPD  0(R9)(SI*8), Y2, Y2
+	VMOVUPD Y2, 0(R9)(SI*8)
+	VMULPD  Y2, Y1, Y3
+	VADDPD  Y3, Y8, Y8
+	VMULPD  Y13, Y0, Y2
+	VADDPD  0(R10)(SI*8), Y2, Y2
+	VMOVUPD Y2, 0(R10)(SI*8)
+	VMULPD  Y2, Y1, Y3
+	VADDPD  Y3, Y9, Y9
+	ADDQ    $4, SI
+	SUBQ    $4, DI
+
+g2tail:
+	VEXTRACTF128 $1, Y8, X4
+	VEXTRACTF128 $1, Y9, X5
+	TESTQ        DI, DI
+	JZ           g2end
+
+g2one:
+	VMOVSD 0(R8)(SI*8), X0
+	VMOVSD 0(R13)(SI*8), X1
+	VMULSD ws+48(FP), X1, X1
+	VMOVSD X1, 0(R13)(SI*8)
+	VMULSD X12, X0, X2
+	VADDSD 0(R9)(SI*8), X2, X2
+	VMOVSD X2, 0(R9)(SI*8)
+	VMULSD X2, X1, X3
+	VADDSD X3, X8, X8
+	VMULSD X13, X0, X2
+	VADDSD 0(R10)(SI*8), X2, X2
+	VMOVSD X2, 0(R10)(SI*8)
+	VMULSD X2, X1, X3
+	VADDSD X3, X9, X9
+	INCQ   SI
+	DECQ   DI
+	JNZ    g2one
+
+g2end:
+	VADDPD     X4, X8, X8
+	VUNPCKHPD  X8, X8, X0
+	VADDSD     X8, X0, X0
+	VMOVSD     X0, d0+120(FP)
+	VADDPD     X5, X9, X9
+	VUNPCKHPD  X9, X9, X0
+	VADDSD     X9, X0, X0
+	VMOVSD     X0, d1+128(FP)
+	VZEROUPPER
+	RET
+
+// func axpyDotScaled4AVX2(v, w []float64, ws, a0, a1, a2, a3 float64, c0, c1, c2, c3 []float64) (d0, d1, d2, d3 float64)
+//
+// floats.Scale(ws, w[:len(v)-1]), then axpyDot4AVX2 with the scaled w, in one pass.
+TEXT ·axpyDotScaled4AVX2(SB), NOSPLIT, $0-216
+	MOVQ         v_base+0(FP), R8
+	MOVQ         v_len+8(FP), DI
+	MOVQ         w_base+24(FP), R13
+	VBROADCASTSD a0+56(FP), Y12
+	VBROADCASTSD a1+64(FP), Y13
+	VBROADCASTSD a2+72(FP), Y14
+	VBROADCASTSD a3+80(FP), Y15
+	MOVQ         c0_base+88(FP), R9
+	MOVQ         c1_base+112(FP), R10
+	MOVQ         c2_base+136(FP), R11
+	MOVQ         c3_base+160(FP), R12
+	VXORPD       Y8, Y8, Y8
+	VXORPD       Y9, Y9, Y9
+	VXORPD       Y10, Y10, Y10
+	VXORPD       Y11, Y11, Y11
+	VXORPD       X4, X4, X4
+	VXORPD       X5, X5, X5
+	VXORPD       X6, X6, X6
+	VXORPD       X7, X7, X7
+	TESTQ        DI, DI
+	JZ           g4end
+	VBROADCASTSD ws+48(FP), Y7
+
+	// Element 0: the update alone.
+	VMOVSD (R8), X0
+	VMULSD X12, X0, X2
+	VADDSD (R9), X2, X2
+	VMOVSD X2, (R9)
+	VMULSD X13, X0, X2
+	VADDSD (R10), X2, X2
+	VMOVSD X2, (R10)
+	VMULSD X14, X0, X2
+	VADDSD (R11), X2, X2
+	VMOVSD X2, (R11)
+	VMULSD X15, X0, X2
+	VADDSD (R12), X2, X2
+	VMOVSD X2, (R12)
+	ADDQ   $8, R8
+	ADDQ   $8, R9
+	ADDQ   $8, R10
+	ADDQ   $8, R11
+	ADDQ   $8, R12
+	XORQ   SI, SI
+	SUBQ   $9, DI
+	JL     g4four
+
+g4loop:
+	// Two blocks of four a turn, both into the same sums: element i, then i+4.
+	VMOVUPD 0(R8)(SI*8), Y0
+	VMOVUPD 0(R13)(SI*8), Y1
+	VMULPD  Y7, Y1, Y1
+	VMOVUPD Y1, 0(R13)(SI*8)
+	VMULPD  Y12, Y0, Y2
+	VADDPD  0(R9)(SI*8), Y2, Y2
+	VMOVUPD Y2, 0(R9)(SI*8)
+	VMULPD  Y2, Y1, Y3
+	VADDPD  Y3, Y8, Y8
+	VMULPD  Y13, Y0, Y2
+	VADDPD  0(R10)(SI*8), Y2, Y2
+	VMOVUPD Y2, 0(R10)(SI*8)
+	VMULPD  Y2, Y1, Y3
+	VADDPD  Y3, Y9, Y9
+	VMULPD  Y14, Y0, Y2
+	VADDPD  0(R11)(SI*8), Y2, Y2
+	VMOVUPD Y2, 0(R11)(SI*8)
+	VMULPD  Y2, Y1, Y3
+	VADDPD  Y3, Y10, Y10
+	VMULPD  Y15, Y0, Y2
+	VADDPD  0(R12)(SI*8), Y2, Y2
+	VMOVUPD Y2, 0(R12)(SI*8)
+	VMULPD  Y2, Y1, Y3
+	VADDPD  Y3, Y11, Y11
+	VMOVUPD 32(R8)(SI*8), Y0
+	VMOVUPD 32(R13)(SI*8), Y1
+	VMULPD  Y7, Y1, Y1
+	VMOVUPD Y1, 32(R13)(SI*8)
+	VMULPD  Y12, Y0, Y2
+	VADDPD  32(R9)(SI*8), Y2, Y2
+	VMOVUPD Y2, 32(R9)(SI*8)
+	VMULPD  Y2, Y1, Y3
+	VADDPD  Y3, Y8, Y8
+	VMULPD  Y13, Y0, Y2
+	VADDPD  32(R10)(SI*8), Y2, Y2
+	VMOVUPD Y2, 32(R10)(SI*8)
+	VMULPD  Y2, Y1, Y3
+	VADDPD  Y3, Y9, Y9
+	VMULPD  Y14, Y0, Y2
+	VADDPD  32(R11)(SI*8), Y2, Y2
+	VMOVUPD Y2, 32(R11)(SI*8)
+	VMULPD  Y2, Y1, Y3
+	VADDPD  Y3, Y10, Y10
+	VMULPD  Y15, Y0, Y2
+	VADDPD  32(R12)(SI*8), Y2, Y2
+	VMOVUPD Y2, 32(R12)(SI*8)
+	VMULPD  Y2, Y1, Y3
+	VADDPD  Y3, Y11, Y11
+	ADDQ    $8, SI
+	SUBQ    $8, DI
+	JGE     g4loop
+
+g4four:
+	ADDQ    $8, DI
+	CMPQ    DI, $4
+	JL      g4tail
+	VMOVUPD 0(R8)(SI*8), Y0
+	VMOVUPD 0(R13)(SI*8), Y1
+	VMULPD  Y7, Y1, Y1
+	VMOVUPD Y1, 0(R13)(SI*8)
+	VMULPD  Y12, Y0, Y2
+	VADDPD  0(R9)(SI*8), Y2, Y2
+	VMOVUPD Y2, 0(R9)(SI*8)
+	VMULPD  Y2, Y1, Y3
+	VADDPD  Y3, Y8, Y8
+	VMULPD  Y13, Y0, Y2
+	VADDPD  0(R10)(SI*8), Y2, Y2
+	VMOVUPD Y2, 0(R10)(SI*8)
+	VMULPD  Y2, Y1, Y3
+	VADDPD  Y3, Y9, Y9
+	VMULPD  Y14, Y0, Y2
+	VADDPD  0(R11)(SI*8), Y2, Y2
+	VMOVUPD Y2, 0(R11)(SI*8)
+	VMULPD  Y2, Y1, Y3
+	VADDPD  Y3, Y10, Y10
+	VMULPD  Y15, Y0, Y2
+	VADDPD  0(R12)(SI*8), Y2, Y2
+	VMOVUPD Y2, 0(R12)(SI*8)
+	VMULPD  Y2, Y1, Y3
+	VADDPD  Y3, Y11, Y11
+	ADDQ    $4, SI
+	SUBQ    $4, DI
+
+g4tail:
+	VEXTRACTF128 $1, Y8, X4
+	VEXTRACTF128 $1, Y9, X5
+	VEXTRACTF128 $1, Y10, X6
+	VEXTRACTF128 $1, Y11, X7
+	TESTQ        DI, DI
+	JZ           g4end
+
+g4one:
+	VMOVSD 0(R8)(SI*8), X0
+	VMOVSD 0(R13)(SI*8), X1
+	VMULSD ws+48(FP), X1, X1
+	VMOVSD X1, 0(R13)(SI*8)
+	VMULSD X12, X0, X2
+	VADDSD 0(R9)(SI*8), X2, X2
+	VMOVSD X2, 0(R9)(SI*8)
+	VMULSD X2, X1, X3
+	VADDSD X3, X8, X8
+	VMULSD X13, X0, X2
+	VADDSD 0(R10)(SI*8), X2, X2
+	VMOVSD X2, 0(R10)(SI*8)
+	VMULSD X2, X1, X3
+	VADDSD X3, X9, X9
+	VMULSD X14, X0, X2
+	VADDSD 0(R11)(SI*8), X2, X2
+	VMOVSD X2, 0(R11)(SI*8)
+	VMULSD X2, X1, X3
+	VADDSD X3, X10, X10
+	VMULSD X15, X0, X2
+	VADDSD 0(R12)(SI*8), X2, X2
+	VMOVSD X2, 0(R12)(SI*8)
+	VMULSD X2, X1, X3
+	VADDSD X3, X11, X11
+	INCQ   SI
+	DECQ   DI
+	JNZ    g4one
+
+g4end:
+	VADDPD     X4, X8, X8
+	VUNPCKHPD  X8, X8, X0
+	VADDSD     X8, X0, X0
+	VMOVSD     X0, d0+184(FP)
+	VADDPD     X5, X9, X9
+	VUNPCKHPD  X9, X9, X0
+	VADDSD     X9, X0, X0
+	VMOVSD     X0, d1+192(FP)
+	VADDPD     X6, X10, X10
+	VUNPCKHPD  X10, X10, X0
+	VADDSD     X10, X0, X0
+	VMOVSD     X0, d2+200(FP)
+	VADDPD     X7, X11, X11
+	VUNPCKHPD  X11, X11, X0
+	VADDSD     X11, X0, X0
+	VMOVSD     X0, d3+208(FP)
+	VZEROUPPER
+	RET

@@ -76,3 +76,28 @@ func axpyDot2(v, w []float64, a0, a1 float64, c0, c1 []float64) (d0, d1 float64)
 func axpyDot4(v, w []float64, a0, a1, a2, a3 float64, c0, c1, c2, c3 []float64) (d0, d1, d2, d3 float64) {
 	return axpyDot(v, w, a0, c0), axpyDot(v, w, a1, c1), axpyDot(v, w, a2, c2), axpyDot(v, w, a3, c3)
 }
+
+// axpyDotScaled does floats.Scale(ws, w[:n-1]), n = len(v), and then axpyDot(v, w, a,
+// c) with the scaled w.
+func axpyDotScaled(v, w []float64, ws, a float64, c []float64) float64 {
+	if len(v) > 1 {
+		floats.Scale(ws, w[:len(v)-1])
+	}
+	return axpyDot(v, w, a, c)
+}
+
+// axpyDotScaled2 is axpyDotScaled on two columns.
+func axpyDotScaled2(v, w []float64, ws, a0, a1 float64, c0, c1 []float64) (d0, d1 float64) {
+	if len(v) > 1 {
+		floats.Scale(ws, w[:len(v)-1])
+	}
+	return axpyDot2(v, w, a0, a1, c0, c1)
+}
+
+// axpyDotScaled4 is axpyDotScaled on four columns.
+func axpyDotScaled4(v, w []float64, ws, a0, a1, a2, a3 float64, c0, c1, c2, c3 []float64) (d0, d1, d2, d3 float64) {
+	if len(v) > 1 {
+		floats.Scale(ws, w[:len(v)-1])
+	}
+	return axpyDot4(v, w, a0, a1, a2, a3, c0, c1, c2, c3)
+}

@@ -67,7 +67,8 @@ func firstBitDiff(a, b []float64) int {
 }
 
 // TestHouseKernelsMatchGonum checks houseDot, dotPair, dotQuad, addScaled, addScaled2,
-// addScaled4 and scaleVec against gonum's floats.Dot, floats.AddScaled and
+// addScaled4, scaleVec and the fused kernels (axpyDot, axpyDotScaled, axpySelfDot and
+// their two- and four-column forms) against gonum's floats.Dot, floats.AddScaled and
 // floats.Scale, bit for bit, on vectors that start at every offset from an allocation
 // (so at every alignment modulo 32 bytes) and are followed by unrelated data.
 func TestHouseKernelsMatchGonum(t *testing.T) {
@@ -164,6 +165,46 @@ func TestHouseKernelsMatchGonum(t *testing.T) {
 					if i := firstBitDiff(d[:], dw[:]); i >= 0 {
 						t.Fatalf("n=%d off=%d: axpyDot4 product %d is %v, floats.Dot %v", n, off, i, d[i], dw[i])
 					}
+					// The same with w scaled first, on a copy of w.
+					ws := houseTestValue(rng)
+					sw := append([]float64(nil), w...)
+					floats.Scale(ws, sw)
+					reset()
+					for k := range ref {
+						if n >= 2 {
+							dw[k] = floats.Dot(sw, ref[k][1:])
+						}
+					}
+					checkW := func(name string, got []float64) {
+						t.Helper()
+						if i := firstBitDiff(got, sw); i >= 0 {
+							t.Fatalf("n=%d off=%d: %s scaled w[%d] to %v, floats.Scale %v", n, off, name, i, got[i], sw[i])
+						}
+					}
+					w1 := append([]float64(nil), w...)
+					d[0] = axpyDotScaled(x, w1, ws, alpha[0], got[0])
+					check("axpyDotScaled", 1)
+					checkW("axpyDotScaled", w1)
+					if math.Float64bits(d[0]) != math.Float64bits(dw[0]) {
+						t.Fatalf("n=%d off=%d: axpyDotScaled %v, floats.Dot %v", n, off, d[0], dw[0])
+					}
+					reset()
+					w1 = append(w1[:0], w...)
+					d[0], d[1] = axpyDotScaled2(x, w1, ws, alpha[0], alpha[1], got[0], got[1])
+					check("axpyDotScaled2", 2)
+					checkW("axpyDotScaled2", w1)
+					if i := firstBitDiff(d[:2], dw[:2]); i >= 0 {
+						t.Fatalf("n=%d off=%d: axpyDotScaled2 product %d is %v, floats.Dot %v", n, off, i, d[i], dw[i])
+					}
+					reset()
+					w1 = append(w1[:0], w...)
+					d[0], d[1], d[2], d[3] = axpyDotScaled4(x, w1, ws, alpha[0], alpha[1], alpha[2], alpha[3], got[0], got[1], got[2], got[3])
+					check("axpyDotScaled4", 4)
+					checkW("axpyDotScaled4", w1)
+					if i := firstBitDiff(d[:], dw[:]); i >= 0 {
+						t.Fatalf("n=%d off=%d: axpyDotScaled4 product %d is %v, floats.Dot %v", n, off, i, d[i], dw[i])
+					}
+
 					reset()
 					sq := axpySelfDot(x, alpha[0], got[0])
 					check("axpySelfDot", 1)
@@ -211,6 +252,9 @@ func TestHouseKernelsStayInBounds(t *testing.T) {
 				axpyDot(v, w, 2, col(2))
 				axpyDot2(v, w, 2, 2, col(3), col(4))
 				axpyDot4(v, w, 2, 2, 2, 2, col(1), col(2), col(4), col(5))
+				axpyDotScaled(v, col(1)[:n-1], 1, 2, col(2))
+				axpyDotScaled2(v, col(1)[:n-1], 1, 2, 2, col(3), col(4))
+				axpyDotScaled4(v, col(1)[:n-1], 1, 2, 2, 2, 2, col(2), col(3), col(4), col(5))
 			}
 			for k := range 6 {
 				if g := buf[k*(n+8)]; g != 7 {
