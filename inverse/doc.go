@@ -129,9 +129,15 @@
 // Anal. Appl. 13(4):1204-1245, 1992), both checked against gonum in the tests. A
 // reflector's inner products with two or four columns are formed in one pass (dotPair,
 // dotQuad: amd64 assembly that sums each product exactly as gonum's floats.Dot does, so
-// the numbers are the same bit for bit; elsewhere they are floats.Dot calls). The work
-// buffers of a FitLines call are lent by a pooled scratch and reused by the next call
-// (scratch.go); the Result holds none of them.
+// the numbers are the same bit for bit; elsewhere they are floats.Dot calls). Where the
+// processor has AVX2 (cpufeat.go), the QR and its updates run AVX2 kernels that also form
+// the next reflector's inner products in the pass that applies the current one
+// (housekern_amd64.s), and the line basis and its derivatives are computed for four
+// readings at a time (linekern_amd64.s); both do the same operations in the same order as
+// the portable code, without fused multiply-adds, so on amd64 the answers are the same
+// with or without AVX2, which the tests check bit for bit. The work buffers of a FitLines call are
+// lent by a pooled scratch and reused by the next call (scratch.go); the Result holds
+// none of them.
 //
 // # Starting values and the number of conductors
 //
@@ -139,7 +145,12 @@
 // DOMAIN.md): the horizontal component across a line peaks over it and its half-width at
 // half maximum equals the depth below the sensor; the horizontal anomaly at the peak is
 // perpendicular to the line, and the region above half the peak is elongated along it.
-// Starts are ranked by their projected sum of squares and the best are iterated. For K
+// Starts are ranked by their projected sum of squares and the best are iterated. On
+// surveys of more than 256 readings the ranking uses an evenly spaced subsample of about
+// 128, and a start of one line (or of the count the caller set) is iterated there to
+// convergence before the polish on every reading, which then needs one or two iterations
+// to reach the full data's minimum (lines the automatic count tries beyond those and
+// starts with magnetised objects go straight to the full data). For K
 // lines the starts are the best K-1 fit plus a line at the peak of its residual, or one of
 // its lines split into a close pair (a cable and its return).
 //
