@@ -171,18 +171,24 @@ func BenchmarkLineColumn(b *testing.B) {
 	for _, n := range []int{40, 500} {
 		pts := kernPoints(rand.New(rand.NewPCG(1, 2)), n, u, p0)
 		col := make([]float64, 3*n)
-		for _, on := range []bool{false, true} {
-			b.Run(fmt.Sprintf("n=%d/%s", n, kernName(on)), func(b *testing.B) {
-				if on && !useLineKern {
-					b.Skip("no line kernel on this build or processor")
+		benchKernWays(b, n, func() { lineColumn(col, u, p0, pts) })
+	}
+}
+
+// benchKernWays runs f as the sub-benchmarks "n=N/go" (the Go loop) and "n=N/kernel"
+// (skipped where the build or processor has no kernel).
+func benchKernWays(b *testing.B, n int, f func()) {
+	for _, on := range []bool{false, true} {
+		b.Run(fmt.Sprintf("n=%d/%s", n, kernName(on)), func(b *testing.B) {
+			if on && !useLineKern {
+				b.Skip("no line kernel on this build or processor")
+			}
+			withLineKern(on, func() {
+				for b.Loop() {
+					f()
 				}
-				withLineKern(on, func() {
-					for b.Loop() {
-						lineColumn(col, u, p0, pts)
-					}
-				})
 			})
-		}
+		})
 	}
 }
 
@@ -203,18 +209,7 @@ func BenchmarkDLineLevel(b *testing.B) {
 		for k := range out {
 			out[k][0] = make([]float64, 3*n)
 		}
-		for _, on := range []bool{false, true} {
-			b.Run(fmt.Sprintf("n=%d/%s", n, kernName(on)), func(b *testing.B) {
-				if on && !useLineKern {
-					b.Skip("no line kernel on this build or processor")
-				}
-				withLineKern(on, func() {
-					for b.Loop() {
-						sp.dLineLevel(out, dirs, uxv, u, g.p0, 1.5, pts)
-					}
-				})
-			})
-		}
+		benchKernWays(b, n, func() { sp.dLineLevel(out, dirs, uxv, u, g.p0, 1.5, pts) })
 	}
 }
 
