@@ -4,7 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
-	"sort"
+	"slices"
 	"strings"
 )
 
@@ -376,7 +376,7 @@ func (f *fitter) bestOf(starts []start, quick bool) (*candidate, error) {
 			// The full-data separable of a polished start gets its own geometry.
 			geom, dips = append([]lineGeom(nil), geom...), append([]dipGeom(nil), dips...)
 		}
-		sp := newSeparable(sub.pts, sub.y, sub.nrhs, f.set.Background, f.sv.centroid, geom, dips)
+		sp := newSeparableIn(f.scr, sub.pts, sub.y, sub.nrhs, f.set.Background, f.sv.centroid, geom, dips)
 		sp.ptsLo, sp.ptsHi = sub.lo, sub.hi
 		sp.lmWork, sp.scr, sp.pd = &f.scr.lm, f.scr, &sub.proj
 		if prev != nil {
@@ -401,7 +401,15 @@ func (f *fitter) bestOf(starts []start, quick bool) (*candidate, error) {
 		}
 		return nil, firstErr
 	}
-	sort.Slice(rs, func(i, j int) bool { return rs[i].rss < rs[j].rss })
+	slices.SortStableFunc(rs, func(a, b ranked) int {
+		switch {
+		case a.rss < b.rss:
+			return -1
+		case b.rss < a.rss:
+			return 1
+		}
+		return 0
+	})
 	var best *candidate
 	keep, ls := polishKeep, f.set.lm()
 	if f.rough {
@@ -418,7 +426,7 @@ func (f *fitter) bestOf(starts []start, quick bool) (*candidate, error) {
 					lsFull.maxIter = 1
 				}
 			}
-			st.sp = newSeparable(f.sv.pts, f.sv.y, f.sv.nrhs, f.set.Background, f.sv.centroid, st.st.lines, st.st.dips)
+			st.sp = newSeparableIn(f.scr, f.sv.pts, f.sv.y, f.sv.nrhs, f.set.Background, f.sv.centroid, st.st.lines, st.st.dips)
 			st.sp.ptsLo, st.sp.ptsHi = f.sv.lo, f.sv.hi
 			st.sp.lmWork, st.sp.scr, st.sp.pd = &f.scr.lm, f.scr, &f.sv.proj
 		}
@@ -483,7 +491,7 @@ func (f *fitter) preIterate(sub *survey, st start, x0 []float64, ls lmSettings) 
 		return nil, false
 	}
 	geom, dips := append([]lineGeom(nil), st.lines...), append([]dipGeom(nil), st.dips...)
-	sp := newSeparable(sub.pts, sub.y, sub.nrhs, f.set.Background, f.sv.centroid, geom, dips)
+	sp := newSeparableIn(f.scr, sub.pts, sub.y, sub.nrhs, f.set.Background, f.sv.centroid, geom, dips)
 	sp.ptsLo, sp.ptsHi = sub.lo, sub.hi
 	sp.lmWork, sp.scr, sp.pd = &f.scr.lm, f.scr, &sub.proj
 	lmp, _ := sp.problem()

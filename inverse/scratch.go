@@ -1,6 +1,9 @@
 package inverse
 
-import "sync"
+import (
+	"sync"
+	"unsafe"
+)
 
 // scratch lends the work buffers of one FitLines call (the separables' factors, derivative
 // blocks and basis copies, the noise estimate's differences, the covariance's
@@ -17,6 +20,24 @@ import "sync"
 type scratch struct {
 	free, used [][]float64
 	lm         []float64 // the LM engine's workspace (lmProblem.work), one fit at a time
+	// seps are separables lent by separable; the first nsep are in use. A fit builds one
+	// per start it ranks or iterates, each several hundred bytes.
+	seps []*separable
+	nsep int
+}
+
+// separable lends a zeroed separable (a new one when s is nil).
+func (s *scratch) separable() *separable {
+	if s == nil {
+		return new(separable)
+	}
+	if s.nsep == len(s.seps) {
+		s.seps = append(s.seps, new(separable))
+	}
+	sp := s.seps[s.nsep]
+	s.nsep++
+	*sp = separable{}
+	return sp
 }
 
 // scratchPool recycles scratches between calls of FitLines.
@@ -56,6 +77,16 @@ func (s *scratch) take(n int) []float64 {
 	return b
 }
 
+// take3 lends n triples whose contents are arbitrary: the memory of take(3n), seen as
+// [3]float64 values (the same layout).
+func (s *scratch) take3(n int) [][3]float64 {
+	if n == 0 {
+		return nil
+	}
+	b := s.take(3 * n)
+	return unsafe.Slice((*[3]float64)(unsafe.Pointer(&b[0])), n)
+}
+
 // zeros lends a buffer of length n filled with zeros.
 func (s *scratch) zeros(n int) []float64 {
 	b := s.take(n)
@@ -65,6 +96,10 @@ func (s *scratch) zeros(n int) []float64 {
 
 // release takes back every buffer lent since the last release.
 func (s *scratch) release() {
+	for _, sp := range s.seps[:s.nsep] {
+		*sp = separable{} // drop its references to the readings and buffers
+	}
+	s.nsep = 0
 	s.free = append(s.free, s.used...)
 	clear(s.used)
 	s.used = s.used[:0]

@@ -138,9 +138,9 @@ func newSurveyIn(p *Problem, scr *scratch) *survey {
 // anomaly returns, per point, a real anomaly vector from data rows d (3 rows per point x
 // nrhs): for DC the reading minus the per-axis median (a robust background); for AC the
 // phasor rotated so that its largest component is real.
-// Its workspace is lent by scr (nil to allocate).
+// It and its workspace are lent by scr (nil to allocate).
 func anomaly(d []float64, n, nrhs int, scr *scratch) [][3]float64 {
-	a := make([][3]float64, n)
+	a := scr.take3(n)
 	if nrhs == 1 {
 		var med [3]float64
 		col := scr.take(n)

@@ -124,8 +124,15 @@ type dipGeom struct {
 }
 
 func newSeparable(pts [][3]float64, y []float64, nrhs int, bg BackgroundModel, org [3]float64, geom []lineGeom, dips []dipGeom) *separable {
+	return newSeparableIn(nil, pts, y, nrhs, bg, org, geom, dips)
+}
+
+// newSeparableIn is newSeparable with the separable itself lent by scr (nil to allocate
+// it); its work buffers are set by the caller as before.
+func newSeparableIn(scr *scratch, pts [][3]float64, y []float64, nrhs int, bg BackgroundModel, org [3]float64, geom []lineGeom, dips []dipGeom) *separable {
 	m := 3 * len(pts)
-	sp := &separable{pts: pts, m: m, nrhs: nrhs, y: y, bg: bg, org: org, geom: geom, dips: dips}
+	sp := scr.separable()
+	*sp = separable{pts: pts, m: m, nrhs: nrhs, y: y, bg: bg, org: org, geom: geom, dips: dips}
 	sp.q = len(geom) + 3*len(dips) + bg.columns()
 	// Layout of a: lines, dipoles, gradient terms; the uniform background is implicit.
 	sp.pos = make([]int, sp.q)
