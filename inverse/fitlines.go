@@ -384,7 +384,7 @@ func (f *fitter) bestOf(starts []start, quick bool) (*candidate, error) {
 			prev.a, prev.qty, prev.coef, prev.tau, prev.bbar, prev.ok = nil, nil, nil, nil, nil, false
 		}
 		prev = sp
-		x0, lo, hi := sp.pack()
+		x0, lo, hi := sp.packInto(f.scr.take(3 * sp.nparams()))
 		project(x0, lo, hi)
 		r = f.scr.grow(r, sp.residLen())
 		if err := sp.resid(x0, r); err != nil {

@@ -6,6 +6,7 @@ import (
 	"math"
 	"math/cmplx"
 	"sort"
+	"strconv"
 
 	"gonum.org/v1/gonum/mat"
 )
@@ -107,7 +108,7 @@ func (f *fitter) summarise(c *candidate) (*summary, error) {
 	su.names = paramNames(sp)
 
 	// Orientation: azimuth of Dir in [0, 180); flipping reverses current and dip.
-	flip := make([]bool, nl)
+	flip := make([]bool, nl, 8) // on the stack for up to 8 lines
 	for l, g := range sp.geom {
 		a := math.Mod(g.az, 2*math.Pi)
 		if a < 0 {
@@ -125,11 +126,8 @@ func (f *fitter) summarise(c *candidate) (*summary, error) {
 	nq := len(base) / nl
 	// Gradients by central differences on the (smooth, cheap) map from parameters to
 	// reported quantities, with steps well inside one sigma.
-	grads := make([][]float64, len(base))
 	gbuf := qbuf[3*nqAll : 3*nqAll+nqAll*len(su.v)]
-	for i := range grads {
-		grads[i] = gbuf[i*len(su.v) : (i+1)*len(su.v)]
-	}
+	grad := func(i int) []float64 { return gbuf[i*len(su.v) : (i+1)*len(su.v)] }
 	v := qbuf[3*nqAll+nqAll*len(su.v):]
 	copy(v, su.v)
 	for j := range su.v {
@@ -151,11 +149,11 @@ func (f *fitter) summarise(c *candidate) (*summary, error) {
 			if per := quantityPeriod(i % nq); per > 0 {
 				d = math.Remainder(d, per)
 			}
-			grads[i][j] = d / (2 * h)
+			grad(i)[j] = d / (2 * h)
 		}
 	}
 	sigmaOf := func(i int) float64 {
-		g := grads[i]
+		g := grad(i)
 		var s float64
 		for a, ga := range g {
 			if ga == 0 {
@@ -406,41 +404,91 @@ func deriveQuantities(sp *separable, sv *survey, zref float64, flip []bool, v []
 	return out
 }
 
+// paramNames names the parameters in the order of the covariance: geometry of each
+// line and dipole, then the strengths (with .re and .im for phasors). The names of the
+// first few sources are made once (sourceNames), so that a fit does not format them.
 func paramNames(sp *separable) []string {
-	var names []string
+	nb := sp.bg.columns()
+	n := len(sp.dips)*3 + sp.nrhs*(len(sp.geom)+3*len(sp.dips)+nb)
+	for _, g := range sp.geom {
+		n += g.nfree()
+	}
+	names := make([]string, 0, n)
 	for l, g := range sp.geom {
-		p := fmt.Sprintf("line%d.", l+1)
-		names = append(names, p+"offset", p+"height")
+		names = append(names, sourceName(lineSource, l, 0), sourceName(lineSource, l, 1))
 		if !g.holdAz {
-			names = append(names, p+"azimuth")
+			names = append(names, sourceName(lineSource, l, 2))
 		}
 		if !g.holdDip {
-			names = append(names, p+"dip")
+			names = append(names, sourceName(lineSource, l, 3))
 		}
 	}
 	for d := range sp.dips {
-		p := fmt.Sprintf("dipole%d.", d+1)
-		names = append(names, p+"east", p+"north", p+"up")
+		for p := range 3 {
+			names = append(names, sourceName(dipoleSource, d, p))
+		}
 	}
-	bgn := []string{"bg.e", "bg.n", "bg.u", "grad.ee", "grad.en", "grad.eu", "grad.nn", "grad.nu"}
+	bgn := [...]string{"bg.e", "bg.n", "bg.u", "grad.ee", "grad.en", "grad.eu", "grad.nn", "grad.nu"}
 	for k := range sp.nrhs {
-		sfx := ""
+		// Strength names: plain for real strengths, then .re and .im for phasors.
+		first := strengthNames + k*(1+3)
 		if sp.nrhs == 2 {
-			sfx = [2]string{".re", ".im"}[k]
+			first += 1 + 3
 		}
 		for l := range sp.geom {
-			names = append(names, fmt.Sprintf("line%d.current%s", l+1, sfx))
+			names = append(names, sourceName(lineSource, l, first))
 		}
 		for d := range sp.dips {
-			for _, ax := range []string{"e", "n", "u"} {
-				names = append(names, fmt.Sprintf("dipole%d.moment.%s%s", d+1, ax, sfx))
+			for ax := range 3 {
+				names = append(names, sourceName(dipoleSource, d, first+1+ax))
 			}
 		}
-		for j := range sp.bg.columns() {
-			names = append(names, bgn[j]+sfx)
+		for j := range nb {
+			names = append(names, bgn[j]+[...]string{"", ".re", ".im"}[first/4-1])
 		}
 	}
 	return names
+}
+
+// Source kinds and parameter suffixes of the parameter names: for source kind k,
+// sourceSuffix[k][p] is the name of parameter p after "line1.". From strengthNames
+// on come the strengths: current (lines) or moment.e, .n, .u (dipoles), plain, .re
+// and .im.
+const (
+	lineSource, dipoleSource = 0, 1
+	strengthNames            = 4
+)
+
+var sourceSuffix = [2][16]string{
+	{"offset", "height", "azimuth", "dip",
+		"current", "", "", "", "current.re", "", "", "", "current.im"},
+	{"east", "north", "up", "",
+		"", "moment.e", "moment.n", "moment.u", "", "moment.e.re", "moment.n.re", "moment.u.re",
+		"", "moment.e.im", "moment.n.im", "moment.u.im"},
+}
+
+// sourceNames[k][i][p] is the name of parameter p of the source i (from 0) of kind k,
+// for the first few sources.
+var sourceNames = func() (t [2][4][16]string) {
+	for k, kind := range [2]string{"line", "dipole"} {
+		for i := range t[k] {
+			for p, sfx := range sourceSuffix[k] {
+				if sfx != "" {
+					t[k][i][p] = kind + strconv.Itoa(i+1) + "." + sfx
+				}
+			}
+		}
+	}
+	return t
+}()
+
+// sourceName returns the name of parameter p of source i (from 0) of kind k, such as
+// "line1.offset".
+func sourceName(k, i, p int) string {
+	if i < len(sourceNames[k]) {
+		return sourceNames[k][i][p]
+	}
+	return [2]string{"line", "dipole"}[k] + strconv.Itoa(i+1) + "." + sourceSuffix[k][p]
 }
 
 // report builds the Result of the chosen candidate.
@@ -494,8 +542,8 @@ func (f *fitter) report(c *candidate, scores []ModelScore) (*Result, error) {
 	n := len(f.sv.pts)
 	var ss float64
 	if nr == 1 {
-		r.Predicted = make([][3]float64, n)
-		r.Residuals = make([][3]float64, n)
+		pr := make([][3]float64, 2*n) // one allocation for both
+		r.Predicted, r.Residuals = pr[:n:n], pr[n:]
 		for i := range n {
 			for j := range 3 {
 				e := res[3*i+j]
@@ -505,8 +553,8 @@ func (f *fitter) report(c *candidate, scores []ModelScore) (*Result, error) {
 			}
 		}
 	} else {
-		r.PredictedPhasors = make([][3]complex128, n)
-		r.ResidualPhasors = make([][3]complex128, n)
+		pr := make([][3]complex128, 2*n)
+		r.PredictedPhasors, r.ResidualPhasors = pr[:n:n], pr[n:]
 		for i := range n {
 			for j := range 3 {
 				e := complex(res[(3*i+j)*2], res[(3*i+j)*2+1])

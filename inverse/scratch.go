@@ -36,7 +36,7 @@ func (s *scratch) separable() *separable {
 	}
 	sp := s.seps[s.nsep]
 	s.nsep++
-	*sp = separable{}
+	*sp = separable{lmp: sp.lmp}
 	return sp
 }
 
@@ -97,7 +97,12 @@ func (s *scratch) zeros(n int) []float64 {
 // release takes back every buffer lent since the last release.
 func (s *scratch) release() {
 	for _, sp := range s.seps[:s.nsep] {
-		*sp = separable{} // drop its references to the readings and buffers
+		// Drop its references to the readings and buffers (the LM wrapper keeps
+		// nothing else once cleared).
+		if p := sp.lmp; p != nil {
+			p.lower, p.upper, p.work = nil, nil, nil
+		}
+		*sp = separable{lmp: sp.lmp}
 	}
 	s.nsep = 0
 	s.free = append(s.free, s.used...)

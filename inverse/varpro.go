@@ -102,6 +102,9 @@ type separable struct {
 	tlo, thi     []float64
 	at           []float64 // x of the cached state
 	ok           bool
+	// lmp is problem's wrapper for the LM engine, kept by a scratch's separable when it
+	// is lent again (its method values are bound to this separable).
+	lmp *lmProblem
 }
 
 // projData holds the unweighted data of a survey with the uniform background projected
@@ -914,10 +917,23 @@ func (sp *separable) jacCols(x, _ []float64, jc []float64) error {
 	return nil
 }
 
-// problem wraps the separable model for the LM engine.
+// problem wraps the separable model for the LM engine. A separable lent by a scratch
+// keeps its wrapper (and the method values in it, bound to the same separable) from fit
+// to fit, and its vectors come from the scratch.
 func (sp *separable) problem() (*lmProblem, []float64) {
-	x, lo, hi := sp.pack()
-	return &lmProblem{m: sp.residLen(), n: len(x), resid: sp.resid, jac: sp.jac, jacCols: sp.jacCols, lower: lo, upper: hi, work: sp.lmWork}, x
+	var x, lo, hi []float64
+	if sp.scr != nil {
+		x, lo, hi = sp.packInto(sp.scr.take(3 * sp.nparams()))
+	} else {
+		x, lo, hi = sp.pack()
+	}
+	p := sp.lmp
+	if p == nil || sp.scr == nil {
+		p = &lmProblem{resid: sp.resid, jac: sp.jac, jacCols: sp.jacCols}
+		sp.lmp = p
+	}
+	p.m, p.n, p.lower, p.upper, p.work = sp.residLen(), len(x), lo, hi, sp.lmWork
+	return p, x
 }
 
 // fullJacobian returns the weighted Jacobian of the full model with respect to all
