@@ -47,6 +47,26 @@
 // and the noise and distortion are then added in those axes, so the log is
 // in the sensor frame with no attitude columns, one group "S01".
 //
+// With pattern = "fixed" several sensors are held in place, as the serve
+// command's continuous pipeline reads them, and all log at once. Each has
+// an orientation (yaw, pitch, roll in degrees taking the sensor axes to
+// east-north-up, as in the serve command's site file), and reads
+//
+//	b_sensor = R^T b_ENU,  R = Rz(yaw) Ry(pitch) Rx(roll),
+//
+// with Rz, Ry, Rx right-handed rotations about the up, north and east
+// axes; the pipeline applies R to turn the readings back to east-north-up.
+// Noise and distortion are added in the sensor's axes. The log has no
+// positions: its group column names the sensor of each row (the replay
+// command publishes each group as that sensor's data), and the rows
+// interleave the sensors in time.
+//
+// A line or polyline conductor may change its current at a given time
+// (change_at_s, current_after_a): the current steps from current_a to
+// current_after_a at that many seconds after the first reading, the same
+// frequency and phase, so a log can show an imbalance or a step that the
+// pipeline's alarms should catch.
+//
 // With attitude = "walking" the field is first expressed in the axes of a
 // sensor facing along the survey line and swaying (aerospace Z-Y-X roll,
 // pitch and yaw, logged beside it), so that the calibrate package's tilt
@@ -90,7 +110,7 @@
 //	sway_deg = 5                      #   facing along the line, swaying
 //
 //	[survey]
-//	pattern = "traverses"             # or "grid", or "spin" (below)
+//	pattern = "traverses"             # or "grid", "spin" or "fixed" (below)
 //	route = [[0, 0], [80, 10]]        # plan path the traverses cross
 //	count = 31                        # traverses
 //	spacing_m = 5                     # along the route
@@ -107,6 +127,8 @@
 //	current_a = 40                    # or currents_a = [...] per segment
 //	frequency_hz = 50                 # optional: AC, current_a is RMS
 //	phase_deg = 0
+//	change_at_s = 30                  # optional: from 30 s after the first
+//	current_after_a = 32              #   reading on, 32 A (one current_a only)
 //
 // A spin replaces the traverse keys of [survey] with
 //
@@ -123,9 +145,33 @@
 // testdata/scenarios/kestrel-moor-spin.toml is a commented example: the
 // spin of the sensor used for kestrel-moor-step.toml.
 //
+// Fixed sensors replace the traverse keys of [survey] with
+//
+//	[survey]
+//	pattern = "fixed"                 # sensors held in place, own axes
+//	duration_s = 60                   # how long they log (default 60)
+//
+//	[[survey.sensor]]                 # one table per sensor
+//	name = "fl-n1"                    # group column value; letters,
+//	                                  #   digits, '-' and '_'; unique
+//	position = [0.0, 4.0, 0.3]        # east, north, up, m
+//	orientation = [90.0, 0.0, 0.0]    # yaw, pitch, roll, degrees (optional)
+//
+// Each sensor logs at sensor.sample_rate_hz (which must be given; there
+// is no walking speed), at times start + k / rate for
+// 0 <= k < duration_s * rate, so that a whole number of seconds fills
+// whole windows of the pipeline. A sensor's height is the up coordinate of
+// its position, so sensor.height_m is not given. The [[survey.sensor]]
+// tables take the same keys as an asset's [[asset.sensor]] tables in the
+// serve command's site file (less calibration), so sensors can be copied
+// from one to the other; the repository's
+// testdata/scenarios/harrow-fen-fixed.toml reproduces the site file's
+// fenwick-lane asset with 20 A of return current lost half way through.
+//
 // Each traverse (or grid line) is written with its own value in the group
 // column ("T01", "T02", ..., or "L01", ... for a grid), so the locate command
-// can fit them one by one with --group-by group.
+// can fit them one by one with --group-by group; each fixed sensor with its
+// name.
 //
 // An optional [base] table adds a base station: a fixed magnetometer away from
 // the conductors that sees the same Earth field and drift, for the base

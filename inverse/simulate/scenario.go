@@ -103,9 +103,11 @@ type Sensor struct {
 // Survey is where the sensor goes: traverses across a route, or a grid of
 // parallel lines.
 type Survey struct {
-	// Pattern is "traverses" (the default), "grid" or "spin" (the sensor
+	// Pattern is "traverses" (the default), "grid", "spin" (the sensor
 	// held at At and turned through many orientations for Duration
-	// seconds: a calibration log in the sensor's own axes, see spin.go).
+	// seconds: a calibration log in the sensor's own axes, see spin.go) or
+	// "fixed" (the sensors listed in Sensors, each logging in its own axes
+	// for Duration seconds, see fixed.go).
 	Pattern string `toml:"pattern"`
 
 	// Route is the plan path (east, north) the traverses cross. When empty
@@ -133,11 +135,16 @@ type Survey struct {
 	// At is where a spin is done (east, north), m; the sensor is at its
 	// height above the ground.
 	At [2]float64 `toml:"at"`
-	// Duration is how long a spin lasts, s; zero means 240.
+	// Duration is how long a spin lasts, s, zero meaning 240; or how long
+	// fixed sensors log, s, zero meaning 60.
 	Duration float64 `toml:"duration_s"`
 	// Turns is how many times the sensor is turned about its own z axis
 	// during a spin while that axis tips over; zero means 16.
 	Turns float64 `toml:"turns"`
+
+	// Sensors are the fixed sensors of pattern "fixed" ([[survey.sensor]]
+	// tables), logged side by side at Sensor.SampleRate.
+	Sensors []FixedSensor `toml:"sensor"`
 
 	// Speed is the walking speed, m/s; zero means 1 m/s.
 	Speed float64 `toml:"speed_m_s"`
@@ -150,6 +157,22 @@ type Survey struct {
 	// Zigzag walks every other line in the opposite direction; nil means
 	// true.
 	Zigzag *bool `toml:"zigzag"`
+}
+
+// FixedSensor is one magnetometer held in place (pattern "fixed"), given as
+// the site file of the serve command gives it, so that an asset's sensors
+// can be copied between the two.
+type FixedSensor struct {
+	// Name is the sensor's name, written in the group column: 1 to 64
+	// letters, digits, '-' or '_' (the names the broker accepts).
+	Name string `toml:"name"`
+	// Position is east, north, up, m; up is height above the ground.
+	Position [3]float64 `toml:"position"`
+	// Orientation is yaw, pitch, roll in degrees taking the sensor axes to
+	// east-north-up: b_ENU = Rz(yaw) Ry(pitch) Rx(roll) b_sensor, right-
+	// handed rotations about the up, north and east axes. Zero is a sensor
+	// with its x, y, z axes along east, north, up.
+	Orientation [3]float64 `toml:"orientation"`
 }
 
 // Base describes a base station: a fixed sensor away from the conductors
@@ -200,6 +223,13 @@ type Conductor struct {
 	Frequency float64 `toml:"frequency_hz"`
 	// Phase is the AC phase at Unix time zero, degrees.
 	Phase float64 `toml:"phase_deg"`
+
+	// ChangeAt, when set, is when the current changes, s after the first
+	// reading; from then on the conductor carries CurrentAfter (RMS for
+	// AC, same frequency and phase). Lines and polylines with one current
+	// only. Both keys are given or neither.
+	ChangeAt     *float64 `toml:"change_at_s"`
+	CurrentAfter *float64 `toml:"current_after_a"`
 }
 
 // Limits on what a scenario may ask for, so that a typing slip cannot fill
@@ -293,6 +323,14 @@ func (sc *Scenario) Validate() error {
 	walked := sc.Survey.Pattern == "" || sc.Survey.Pattern == "traverses" || sc.Survey.Pattern == "grid"
 	if len(sc.Conductors) == 0 && walked {
 		return fmt.Errorf("simulate: %s: no [[conductor]] tables: a scenario needs at least one source", sc.Source)
+	}
+	// Fixed sensors are checked first: the conductors must lie below them.
+	if sc.Survey.Pattern == "fixed" {
+		if _, err := sc.fixedLines(); err != nil {
+			return err
+		}
+	} else if len(sc.Survey.Sensors) > 0 && (walked || sc.Survey.Pattern == "spin") {
+		return sc.errAt("survey.sensor", 0, "", "[[survey.sensor]] tables are for pattern = \"fixed\"")
 	}
 	for i := range sc.Conductors {
 		if err := sc.validateConductor(i); err != nil {
@@ -438,8 +476,37 @@ func (sc *Scenario) validateConductor(i int) error {
 	case "dipole":
 		top = c.Position[2]
 	}
-	if top >= sc.Sensor.Height {
-		return bad("kind", "the source reaches up to %g m, not below the sensor height %g m (buried sources have up < 0)", top, sc.Sensor.Height)
+	if low := sc.lowestSensor(); top >= low {
+		return bad("kind", "the source reaches up to %g m, not below the sensor height %g m (buried sources have up < 0)", top, low)
+	}
+	return sc.validateChange(i)
+}
+
+// validateChange checks a conductor's change of current.
+func (sc *Scenario) validateChange(i int) error {
+	c := &sc.Conductors[i]
+	bad := func(key, format string, a ...any) error {
+		return sc.errAt("conductor", i, key, "conductor %d (%q): %s", i+1, c.Name, fmt.Sprintf(format, a...))
+	}
+	switch {
+	case c.ChangeAt == nil && c.CurrentAfter == nil:
+		return nil
+	case c.ChangeAt == nil:
+		return bad("current_after_a", "current_after_a needs change_at_s (when the current changes, s after the first reading)")
+	case c.CurrentAfter == nil:
+		return bad("change_at_s", "change_at_s needs current_after_a (the current after the change, A)")
+	}
+	if at := *c.ChangeAt; !finite(at) || at < 0 {
+		return bad("change_at_s", "change time %g s must be a number >= 0 (s after the first reading)", at)
+	}
+	if !finite(*c.CurrentAfter) {
+		return bad("current_after_a", "current after the change must be a finite number")
+	}
+	switch {
+	case c.Kind == "dipole":
+		return bad("change_at_s", "a dipole has no current to change")
+	case len(c.Currents) > 0:
+		return bad("change_at_s", "a change of current needs one current_a, not currents_a per segment")
 	}
 	return nil
 }

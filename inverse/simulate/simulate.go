@@ -18,19 +18,35 @@ import (
 const teslaToNT = 1e9
 
 // source is a conductor ready to evaluate: field returns its field at r, nT,
-// at full DC strength or at RMS strength for AC.
+// at full DC strength or at RMS strength for AC; from time changeAt on
+// (Unix seconds; +Inf for a steady current) after returns it instead.
 type source struct {
-	field func(r [3]float64) [3]float64
-	ac    bool
-	freq  float64 // Hz
-	phase float64 // rad
+	field    func(r [3]float64) [3]float64
+	after    func(r [3]float64) [3]float64
+	changeAt float64
+	ac       bool
+	freq     float64 // Hz
+	phase    float64 // rad
+}
+
+// at returns the source's field at r at time t (RMS for AC).
+func (s *source) at(r [3]float64, t float64) [3]float64 {
+	if t >= s.changeAt {
+		return s.after(r)
+	}
+	return s.field(r)
 }
 
 // sources builds the forward models of the scenario's conductors.
 func (sc *Scenario) sources() []source {
 	out := make([]source, 0, len(sc.Conductors))
 	for _, c := range sc.Conductors {
-		s := source{ac: c.Frequency > 0, freq: c.Frequency, phase: c.Phase * math.Pi / 180}
+		s := source{ac: c.Frequency > 0, freq: c.Frequency, phase: c.Phase * math.Pi / 180, changeAt: math.Inf(1)}
+		after := c.Current
+		if c.ChangeAt != nil {
+			s.changeAt = sc.start + *c.ChangeAt
+			after = *c.CurrentAfter
+		}
 		switch c.Kind {
 		case "line":
 			d := *c.Direction
@@ -38,14 +54,22 @@ func (sc *Scenario) sources() []source {
 			l := inverse.Line{Point: *c.Point, Dir: [3]float64{d[0] / n, d[1] / n, d[2] / n}}
 			cur := c.Current
 			s.field = func(r [3]float64) [3]float64 { return scale(l.Field(r, cur), teslaToNT) }
+			s.after = func(r [3]float64) [3]float64 { return scale(l.Field(r, after), teslaToNT) }
 		case "polyline":
 			p := inverse.Polyline{Vertices: c.Vertices}
 			cur := c.segmentCurrents()
 			s.field = func(r [3]float64) [3]float64 { return scale(p.Field(r, cur), teslaToNT) }
+			// A change is only allowed with one current for all segments.
+			curAfter := make([]float64, len(cur))
+			for i := range curAfter {
+				curAfter[i] = after
+			}
+			s.after = func(r [3]float64) [3]float64 { return scale(p.Field(r, curAfter), teslaToNT) }
 		case "dipole":
 			d := inverse.Dipole{Pos: *c.Position}
 			m := *c.Moment
 			s.field = func(r [3]float64) [3]float64 { return scale(d.Field(r, m), teslaToNT) }
+			s.after = s.field
 		}
 		out = append(out, s)
 	}
@@ -76,6 +100,15 @@ type span struct {
 func (sc *Scenario) spans() ([]span, float64) {
 	speed, rate := sc.speed(), sc.rate()
 	out := make([]span, len(sc.lines))
+	if sc.Survey.Pattern == "fixed" {
+		// All sensors log at once; rows interleave (see fixed.go), so
+		// sensor i's first row is row i.
+		n := sc.fixedRows()
+		for i := range out {
+			out[i] = span{start: i, n: n, t0: sc.start}
+		}
+		return out, sc.start + float64(n-1)/rate
+	}
 	t0, last, row := sc.start, math.Inf(-1), 0
 	for i, l := range sc.lines {
 		n := sc.lineSamples(l)
@@ -92,6 +125,9 @@ func (sc *Scenario) spans() ([]span, float64) {
 func (sc *Scenario) reading(i int, sp span, k int) (float64, [3]float64) {
 	l := sc.lines[i]
 	rate := sc.rate()
+	if sc.Survey.Pattern == "fixed" {
+		return sp.t0 + float64(k)/rate, sc.Survey.Sensors[i].Position
+	}
 	d := float64(k) * sc.speed() / rate
 	if sc.Survey.Pattern == "spin" {
 		d = 0
@@ -136,7 +172,10 @@ func (sc *Scenario) Rows() int {
 // seconds), position (m ENU, sensor height above ground at up = 0), field
 // (nT; east, north, up for a level sensor, the sensor's body axes with
 // roll, pitch and yaw columns for a walking one) and the survey line in
-// the group column. Samples.Origin is set when the scenario is
+// the group column. A fixed log (pattern "fixed") has no positions: its
+// group column names the sensor of each row, its fields are in that
+// sensor's axes, and its rows interleave the sensors in time, as the
+// replay command wants them. Samples.Origin is set when the scenario is
 // geo-referenced, and Samples.Meta records the scenario ("scenario", "site",
 // "seed", "simulated"). The same scenario gives the same log every time.
 func Simulate(sc *Scenario) (*ingest.Samples, error) {
@@ -145,14 +184,17 @@ func Simulate(sc *Scenario) (*ingest.Samples, error) {
 	}
 	spans, _ := sc.spans()
 	n := sc.Rows()
+	fixed := sc.Survey.Pattern == "fixed"
 	s := &ingest.Samples{
 		Source: sc.Source,
 		Time:   make([]float64, n),
-		X:      make([]float64, n), Y: make([]float64, n), Z: make([]float64, n),
-		Bx: make([]float64, n), By: make([]float64, n), Bz: make([]float64, n),
+		Bx:     make([]float64, n), By: make([]float64, n), Bz: make([]float64, n),
 		Group: make([]string, n),
 		Frame: ingest.FrameENU,
 		Meta:  sc.meta(),
+	}
+	if !fixed {
+		s.X, s.Y, s.Z = make([]float64, n), make([]float64, n), make([]float64, n)
 	}
 	if o := sc.Origin; o != nil {
 		s.Origin = &ingest.Geodetic{Lat: o.Lat, Lon: o.Lon, H: o.Height}
@@ -162,6 +204,14 @@ func Simulate(sc *Scenario) (*ingest.Samples, error) {
 	if spin {
 		s.Frame = ingest.FrameSensor
 		s.Meta["pattern"] = "spin"
+	}
+	// stride is the distance in rows between a line's consecutive
+	// readings: 1, or the number of sensors when fixed sensors interleave.
+	stride := 1
+	if fixed {
+		s.Frame = ingest.FrameSensor
+		s.Meta["pattern"] = "fixed"
+		stride = len(spans)
 	}
 	if walking {
 		s.Frame = ingest.FrameSensor
@@ -176,20 +226,27 @@ func Simulate(sc *Scenario) (*ingest.Samples, error) {
 		sp := spans[li]
 		rng := rand.New(rand.NewPCG(uint64(sc.Seed), 0x5eed_f0e1^uint64(li)))
 		key := sc.lines[li].Key
+		var rot [3][3]float64
+		if fixed {
+			rot = fixedRotation(sc.Survey.Sensors[li].Orientation)
+		}
 		for k := range sp.n {
 			t, r := sc.reading(li, sp, k)
 			b := sc.earth(t)
 			for _, src := range srcs {
-				f := src.field(r)
+				f := src.at(r, t)
 				w := 1.0
 				if src.ac {
 					w = math.Sqrt2 * math.Cos(cycles(src.freq, t)*2*math.Pi+src.phase)
 				}
 				b = [3]float64{b[0] + w*f[0], b[1] + w*f[1], b[2] + w*f[2]}
 			}
-			j := sp.start + k
+			j := sp.start + k*stride
 			if spin {
 				b = toSensor(b, sc.spinRotation(t))
+			}
+			if fixed {
+				b = toSensor(b, rot)
 			}
 			if walking {
 				roll, pitch, yaw := sc.attitude(li, t-sp.t0)
@@ -203,7 +260,9 @@ func Simulate(sc *Scenario) (*ingest.Samples, error) {
 			}
 			b = sen.distort(b)
 			s.Time[j] = t
-			s.X[j], s.Y[j], s.Z[j] = r[0], r[1], r[2]
+			if !fixed {
+				s.X[j], s.Y[j], s.Z[j] = r[0], r[1], r[2]
+			}
 			s.Bx[j], s.By[j], s.Bz[j] = b[0], b[1], b[2]
 			s.Group[j] = key
 		}
@@ -307,8 +366,9 @@ func (sc *Scenario) meta() map[string]string {
 }
 
 // PeakFields returns, for each conductor, the largest field magnitude it
-// alone produces at the planned readings, nT (RMS for AC): with the sensor
-// noise, a first answer to "will this be detectable?".
+// alone produces at the planned readings, nT (RMS for AC), before or after
+// any change of its current: with the sensor noise, a first answer to
+// "will this be detectable?".
 func (sc *Scenario) PeakFields() []float64 {
 	srcs := sc.sources()
 	spans, _ := sc.spans()
@@ -319,6 +379,9 @@ func (sc *Scenario) PeakFields() []float64 {
 			_, r := sc.reading(li, spans[li], k)
 			for i, src := range srcs {
 				peak[i] = math.Max(peak[i], norm(src.field(r)))
+				if !math.IsInf(src.changeAt, 1) {
+					peak[i] = math.Max(peak[i], norm(src.after(r)))
+				}
 			}
 		}
 		peaks[li] = peak

@@ -199,7 +199,7 @@ margin_s = 10
 		{"duration_s = 20", "duration_s = 20\nturns = -3", "spin turns -3"},
 		{"sample_rate_hz = 5", "attitude = \"walking\"\nsample_rate_hz = 5", "drop attitude"},
 		{"sample_rate_hz = 5\n", "", "give sensor.sample_rate_hz"},
-		{"pattern = \"spin\"", "pattern = \"spiral\"", `unknown pattern "spiral": want "traverses", "grid" or "spin"`},
+		{"pattern = \"spin\"", "pattern = \"spiral\"", `unknown pattern "spiral": want "traverses", "grid", "spin" or "fixed"`},
 		{"duration_s = 20", "duration_s = 20\nat = [1, 2, 3]", "s.toml:8"},
 	}
 	for _, tc := range cases {

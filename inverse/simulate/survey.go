@@ -30,8 +30,11 @@ func (l Line) samples(ds float64) int {
 
 // lineSamples is the number of readings on survey line l.
 func (sc *Scenario) lineSamples(l Line) int {
-	if sc.Survey.Pattern == "spin" {
+	switch sc.Survey.Pattern {
+	case "spin":
 		return sc.spinRows()
+	case "fixed":
+		return sc.fixedRows()
 	}
 	return l.samples(sc.speed() / sc.rate())
 }
@@ -58,8 +61,10 @@ func (sc *Scenario) planLines() ([]Line, error) {
 		}
 	case "spin":
 		return sc.spinLine()
+	case "fixed":
+		return sc.fixedLines()
 	default:
-		return nil, sc.errAt("survey", 0, "pattern", "unknown pattern %q: want \"traverses\", \"grid\" or \"spin\"", sv.Pattern)
+		return nil, sc.errAt("survey", 0, "pattern", "unknown pattern %q: want \"traverses\", \"grid\", \"spin\" or \"fixed\"", sv.Pattern)
 	}
 	if zig {
 		for i := 1; i < len(lines); i += 2 {

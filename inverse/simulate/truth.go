@@ -13,7 +13,8 @@ type Crossing struct {
 	Point [3]float64
 	// Dir is the unit direction of current flow there.
 	Dir [3]float64
-	// Current is the current there, A (RMS for AC), along Dir.
+	// Current is the current there, A (RMS for AC), along Dir; before any
+	// change of current (change_at_s).
 	Current float64
 	// Frequency is the AC frequency, Hz (0 for DC), and Phase the phase at
 	// Unix time zero, degrees.
@@ -27,10 +28,14 @@ type Crossing struct {
 // Crossings lists, line by line in walking order, where each survey line
 // crosses a line or polyline conductor in plan view. Dipoles have no
 // crossing; a conductor running along a survey line (parallel in plan) has
-// none either.
+// none either, and nor does a sensor standing still (a spin, a fixed
+// sensor).
 func (sc *Scenario) Crossings() []Crossing {
 	var out []Crossing
 	for _, l := range sc.lines {
+		if l.Length() == 0 {
+			continue
+		}
 		for ci, c := range sc.Conductors {
 			switch c.Kind {
 			case "line":
