@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"math/cmplx"
+	"strings"
 
 	"undercurrent/inverse"
 	"undercurrent/inverse/route"
@@ -93,6 +94,12 @@ type BuildSettings struct {
 // the route or a track reports as anomalous are searched for a magnetised
 // object (dipole.go); one found beside a further conductor is reported on
 // that conductor's track.
+//
+// Each group records the chi-square against the survey's reference noise
+// (Group.ReferenceChi2); a converged group the route calls a poor fit gets
+// the reason in its Problem, so that every output agrees with the
+// findings. Document.UncertaintyNote is set to SigmaNote, and each route
+// gets its between-station scatter (Route.StationScatterCurrent).
 //
 // Signal.Mode is set to AC when the problems carry phasors, DC otherwise,
 // keeping head's frequency and window. Build returns an error when fits is
@@ -225,6 +232,8 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 			}
 		}
 	}
+	markPoorGroups(d.Groups, r)
+	d.UncertaintyNote = SigmaNote
 	d.SetRoute(r)
 	if len(stations) < 2 {
 		d.Route = nil
@@ -292,17 +301,87 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int) (Group, route
 	}
 	st.RMS = res.RMS
 	st.Signal = signalRMS(res)
+	g.Noise = res.Sigma
 	if refSigma > 0 && res.Sigma > 0 {
 		// Chi-square against the yardstick noise, so that a group fitting
 		// much worse than the others stands out.
 		st.Chi2 = res.Chi2 * (res.Sigma / refSigma) * (res.Sigma / refSigma)
 		st.DOF = res.DOF
+		g.ReferenceNoise, g.ReferenceChi2 = refSigma, st.Chi2
 	}
 	st.OK = g.OK
 	if !f.Dipole {
 		st.Problem = g.Problem
 	}
 	return g, st
+}
+
+// markPoorGroups gives each converged group that the route's quality check
+// calls poor (a "poor-fit" finding of severity caution or worse about
+// conductor 1) the reason as its Problem, so that the group, the CSV, the
+// GeoJSON and the crew report's table agree with the findings. Failed
+// groups keep the reason they failed; a problem the group already has is
+// kept, the route's other reasons appended.
+func markPoorGroups(groups []Group, r *route.Route) {
+	byKey := map[string]int{}
+	for i := range groups {
+		if _, dup := byKey[groups[i].Key]; !dup {
+			byKey[groups[i].Key] = i
+		}
+	}
+	for _, f := range r.Findings {
+		if f.Kind != route.KindPoorFit || f.Severity == route.SeverityInfo {
+			continue
+		}
+		for _, k := range f.Keys {
+			i, ok := byKey[k]
+			if !ok || !groups[i].OK {
+				continue
+			}
+			g := &groups[i]
+			for _, why := range poorReasons(f.Message) {
+				if g.ReferenceNoise > 0 {
+					why = strings.Replace(why, "chi-square per degree of freedom is ",
+						"chi-square per degree of freedom against the survey's reference noise of "+sig(g.ReferenceNoise)+" nT is ", 1)
+				}
+				if why != g.Problem && !strings.Contains(g.Problem, why) {
+					if g.Problem != "" {
+						g.Problem += "; "
+					}
+					g.Problem += why
+				}
+			}
+		}
+	}
+}
+
+// poorReasons takes the reasons out of a poor-fit finding's message, "fit
+// at T19 (chainage 90.0 m) is poor or ambiguous (REASON; REASON); used with
+// care"; it returns the whole message when it is not in that form.
+func poorReasons(msg string) []string {
+	const open, tail = "is poor or ambiguous (", "); "
+	i, j := strings.Index(msg, open), strings.LastIndex(msg, tail)
+	if i < 0 || j < i+len(open) {
+		return []string{msg}
+	}
+	var out []string
+	depth, start := 0, i+len(open)
+	body := msg[start:j]
+	from := 0
+	for k, c := range body {
+		switch c {
+		case '(':
+			depth++
+		case ')':
+			depth--
+		case ';':
+			if depth == 0 {
+				out = append(out, strings.TrimSpace(body[from:k]))
+				from = k + 1
+			}
+		}
+	}
+	return append(out, strings.TrimSpace(body[from:]))
 }
 
 // ambiguity says when the number of conductors is not clear: another

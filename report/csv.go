@@ -4,27 +4,50 @@ import (
 	"encoding/csv"
 	"fmt"
 	"io"
+	"math"
 	"strconv"
 )
 
 // csvHeader lists the columns of WriteCSV. lon_deg and lat_deg are empty
-// when the document has no geodetic origin.
+// when the document has no geodetic origin; conductor is empty for a
+// source in no track (see Source.Conductor); cover_m and cover_sigma_m are
+// empty when the ground is not known.
 var csvHeader = []string{
-	"chainage_m", "group", "source", "kind",
+	"chainage_m", "group", "source", "conductor", "kind",
 	"current_a", "current_sigma_a", "phase_deg", "phase_sigma_deg",
-	"depth_m", "depth_sigma_m", "cover_m",
+	"depth_m", "depth_sigma_m", "cover_m", "cover_sigma_m",
 	"east_m", "north_m", "up_m", "lon_deg", "lat_deg",
 	"azimuth_deg", "azimuth_sigma_deg", "dip_deg", "dip_sigma_deg",
 	"offset_m", "offset_sigma_m",
-	"points", "rms_nt", "ok", "problem",
+	"points", "rms_nt", "reference_chi2", "dof", "ok", "problem",
 }
+
+// csvCol maps a column name of csvHeader to its index.
+var csvCol = func() map[string]int {
+	m := make(map[string]int, len(csvHeader))
+	for i, h := range csvHeader {
+		m[h] = i
+	}
+	return m
+}()
 
 // WriteCSV writes one row per group and source (a group without sources
 // gets one row with empty source columns), in the order of d.Groups: route
 // order when there is a route. Columns are named in the header row with
 // their units; positions are those of the source's point_m (the group's
-// centroid when it has no source). Numbers are plain decimals, positions to
-// the millimetre and longitude and latitude to 1e-8 degree.
+// centroid when it has no source).
+//
+// conductor is 1 for the first line source of a group (the one the route
+// follows), the track's number for a source followed as a further
+// conductor, and empty otherwise. cover_sigma_m is the depth sigma and the
+// ground level's sigma in quadrature, as the cover findings use. ok and
+// problem are the group's (see Group.OK and Group.Problem): a group the
+// route calls poor has ok true and its reason in problem.
+//
+// Sigmas have six significant digits, so that none is rounded to zero;
+// each value carries two decimals past its sigma's leading digit (and at
+// least the millimetre, 0.01 degree or 1e-4 A), positions the
+// millimetre, and longitude and latitude 1e-8 degree.
 func WriteCSV(w io.Writer, d *Document) error {
 	if err := d.Validate(); err != nil {
 		return err
@@ -36,18 +59,30 @@ func WriteCSV(w io.Writer, d *Document) error {
 	for _, g := range d.Groups {
 		base := func(src string, kind string, p [3]float64) []string {
 			row := make([]string, len(csvHeader))
+			set := func(col, v string) { row[csvCol[col]] = v }
 			if g.Chainage != nil {
-				row[0] = fix(*g.Chainage, 3)
+				set("chainage_m", fix(*g.Chainage, 3))
 			}
-			row[1], row[2], row[3] = g.Key, src, kind
-			row[11], row[12], row[13] = fix(p[0], 3), fix(p[1], 3), fix(p[2], 3)
+			set("group", g.Key)
+			set("source", src)
+			set("kind", kind)
+			set("east_m", fix(p[0], 3))
+			set("north_m", fix(p[1], 3))
+			set("up_m", fix(p[2], 3))
 			if lon, lat, ok := d.wgs84(p); ok {
-				row[14], row[15] = fix(lon, 8), fix(lat, 8)
+				set("lon_deg", fix(lon, 8))
+				set("lat_deg", fix(lat, 8))
 			}
-			row[22] = strconv.Itoa(g.Points)
-			row[23] = sig(g.RMS)
-			row[24] = strconv.FormatBool(g.OK)
-			row[25] = g.Problem
+			set("points", strconv.Itoa(g.Points))
+			set("rms_nt", sig(g.RMS))
+			if g.ReferenceChi2 > 0 {
+				set("reference_chi2", sig(g.ReferenceChi2))
+			}
+			if g.DOF > 0 {
+				set("dof", strconv.Itoa(g.DOF))
+			}
+			set("ok", strconv.FormatBool(g.OK))
+			set("problem", g.Problem)
 			return row
 		}
 		if len(g.Sources) == 0 {
@@ -58,21 +93,34 @@ func WriteCSV(w io.Writer, d *Document) error {
 		}
 		for i, s := range g.Sources {
 			row := base(strconv.Itoa(i+1), s.Kind, s.Point)
-			if s.Kind != KindDipole {
-				row[4], row[5] = sig(s.Current), sig(s.CurrentSigma)
-				if s.Phase != nil {
-					row[6] = fix(*s.Phase, 2)
-				}
-				if s.PhaseSigma != nil {
-					row[7] = fix(*s.PhaseSigma, 2)
-				}
-				row[16], row[17] = fix(s.Azimuth, 2), fix(s.AzimuthSigma, 2)
-				row[18], row[19] = fix(s.Dip, 2), fix(s.DipSigma, 2)
-				row[20], row[21] = fix(s.Offset, 3), fix(s.OffsetSigma, 3)
+			set := func(col, v string) { row[csvCol[col]] = v }
+			if c := sourceConductor(d, i, &s); c > 0 {
+				set("conductor", strconv.Itoa(c))
 			}
-			row[8], row[9] = fix(s.Depth, 3), fix(s.DepthSigma, 3)
+			if s.Kind != KindDipole {
+				set("current_a", fixSig(s.Current, s.CurrentSigma, 4))
+				set("current_sigma_a", sig(s.CurrentSigma))
+				if s.Phase != nil {
+					ps := 0.0
+					if s.PhaseSigma != nil {
+						ps = *s.PhaseSigma
+						set("phase_sigma_deg", sig(ps))
+					}
+					set("phase_deg", fixSig(*s.Phase, ps, 2))
+				}
+				set("azimuth_deg", fixSig(s.Azimuth, s.AzimuthSigma, 2))
+				set("azimuth_sigma_deg", sig(s.AzimuthSigma))
+				set("dip_deg", fixSig(s.Dip, s.DipSigma, 2))
+				set("dip_sigma_deg", sig(s.DipSigma))
+				set("offset_m", fixSig(s.Offset, s.OffsetSigma, 3))
+				set("offset_sigma_m", sig(s.OffsetSigma))
+			}
+			set("depth_m", fixSig(s.Depth, s.DepthSigma, 3))
+			set("depth_sigma_m", sig(s.DepthSigma))
 			if c, ok := d.cover(s.Depth); ok {
-				row[10] = fix(c, 3)
+				cs := d.coverSigma(s.DepthSigma)
+				set("cover_m", fixSig(c, cs, 3))
+				set("cover_sigma_m", sig(cs))
 			}
 			if err := cw.Write(row); err != nil {
 				return fmt.Errorf("report: writing CSV: %w", err)
@@ -84,6 +132,26 @@ func WriteCSV(w io.Writer, d *Document) error {
 		return fmt.Errorf("report: writing CSV: %w", err)
 	}
 	return nil
+}
+
+// sourceConductor is the number of the conductor along the route that
+// source i of a group is: its track's number, 1 for the first line source
+// of a group on a route (or of the only group), 0 for a source in no
+// track.
+func sourceConductor(d *Document, i int, s *Source) int {
+	switch {
+	case s.Conductor > 0:
+		return s.Conductor
+	case i == 0 && s.Kind != KindDipole:
+		return 1
+	}
+	return 0
+}
+
+// coverSigma is the one-sigma uncertainty of the cover at a depth with
+// sigma depthSigma: it and the ground level's sigma in quadrature.
+func (d *Document) coverSigma(depthSigma float64) float64 {
+	return math.Hypot(depthSigma, d.DepthReference.GroundSigma)
 }
 
 // cover returns the depth of cover for a depth below the reference, and
@@ -109,3 +177,14 @@ func fix(v float64, prec int) string {
 
 // sig formats v with six significant digits.
 func sig(v float64) string { return strconv.FormatFloat(v, 'g', 6, 64) }
+
+// fixSig formats a value whose one-sigma uncertainty is sigma with at least
+// prec decimals and enough more to show two digits past the sigma's
+// leading one (at most 12 decimals), so that a small sigma is never
+// rounded off the value.
+func fixSig(v, sigma float64, prec int) string {
+	if sigma > 0 && !math.IsInf(sigma, 0) && !math.IsNaN(sigma) {
+		prec = max(prec, min(12, 2-int(math.Floor(math.Log10(sigma)))))
+	}
+	return fix(v, prec)
+}

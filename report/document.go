@@ -57,7 +57,20 @@ type Document struct {
 	Findings []Finding `json:"findings"`
 	// Warnings are notes about the run (skipped rows, clipped readings).
 	Warnings []string `json:"warnings,omitempty"`
+	// UncertaintyNote says in words what the sigmas of the fits count
+	// (the reading noise only, not the error of the model) and where a
+	// realistic spread is given (Route.StationScatterCurrent and
+	// StationScatterDepth). Build sets it to SigmaNote.
+	UncertaintyNote string `json:"uncertainty_note,omitempty"`
 }
+
+// SigmaNote is the Document.UncertaintyNote that Build writes.
+const SigmaNote = "Every fitted sigma (current_sigma_a, depth_sigma_m, phase_sigma_deg, offset, azimuth and dip " +
+	"sigmas) counts the reading noise only. It does not count the error of the model: bends, a neighbouring " +
+	"conductor, the finite length of a real conductor against the straight infinite line fitted, errors in the " +
+	"sensor positions. Real errors are often many times larger. The route's station_scatter_current_a and " +
+	"station_scatter_depth_m, the robust scatter between neighbouring stations, are a more realistic measure " +
+	"of the spread of a single station's current and depth."
 
 // Tool names the program and its version.
 type Tool struct {
@@ -173,14 +186,42 @@ type Group struct {
 	// its sigma.
 	Background      [3]float64 `json:"background_nt"`
 	BackgroundSigma [3]float64 `json:"background_sigma_nt"`
-	// Chi2 and DOF are the fit's chi-square and degrees of freedom.
+	// Chi2 and DOF are the fit's own chi-square and degrees of freedom,
+	// measured against Noise, the reading noise the fit used. When the
+	// noise was estimated from the fit's own residuals (no noise given),
+	// Chi2 equals DOF by construction and says nothing about the quality
+	// of the fit: see ReferenceChi2.
 	Chi2 float64 `json:"chi2"`
 	DOF  int     `json:"dof"`
-	// OK is false when the fit failed or is unusable.
+	// Noise is the one-sigma reading noise the fit used, nT: the noise
+	// given, or the fit's own estimate from its residuals; zero when
+	// unknown.
+	Noise float64 `json:"noise_nt,omitempty"`
+	// ReferenceNoise is the survey's reference reading noise, nT: the
+	// noise given for the run or, when it was estimated, the median of
+	// the groups' own estimates (with three groups or more). It is the
+	// yardstick that calls a fit poor. Zero when there is none.
+	ReferenceNoise float64 `json:"reference_noise_nt,omitempty"`
+	// ReferenceChi2 is the chi-square of the fit against ReferenceNoise,
+	//
+	//	ReferenceChi2 = Chi2 * (Noise / ReferenceNoise)^2,
+	//
+	// with DOF degrees of freedom: ReferenceChi2/DOF well above 1 means
+	// the group fits much worse than the survey's noise allows. Zero when
+	// ReferenceNoise or Noise is zero.
+	ReferenceChi2 float64 `json:"reference_chi2,omitempty"`
+	// OK is true when the fit converged and is usable: its estimates are
+	// reported and, unless Problem says otherwise, sound. A group can be
+	// OK with a Problem (a fit that converged but fits poorly or is
+	// ambiguous: used with care).
 	OK bool `json:"ok"`
 	// Status says why the fit stopped.
 	Status string `json:"status,omitempty"`
-	// Problem says why the fit is poor or ambiguous; empty when sound.
+	// Problem says why the fit failed, is poor or is ambiguous; empty
+	// when it is sound. It includes the verdict of the route's quality
+	// check: a group whose ReferenceChi2/DOF exceeds the route's limit
+	// (a "poor-fit" finding of severity caution) carries the reason
+	// here, so that every output agrees with the findings.
 	Problem string `json:"problem,omitempty"`
 	// Criteria compare models with different numbers of conductors.
 	Criteria []Criterion `json:"criteria,omitempty"`
@@ -277,6 +318,25 @@ type Route struct {
 	Length float64 `json:"length_m"`
 	// Stations are the groups in route order.
 	Stations []Station `json:"stations"`
+	// StationScatterCurrent and StationScatterDepth are the robust
+	// between-station scatter of current (A) and of depth (m) along the
+	// route among used stations, a realistic one-sigma spread of a single
+	// station's estimate that, unlike the fits' sigmas, includes the
+	// error of the model:
+	//
+	//	scatter = 1.4826 * median |x(i+1) - x(i)| / sqrt(2)
+	//
+	// over successive used stations, leaving out pairs that straddle a
+	// reported current step (for current and depth alike). 1.4826 makes
+	// the median absolute deviation a consistent estimator of a normal
+	// standard deviation (Rousseeuw & Croux, J. Am. Stat. Assoc.
+	// 88(424):1273-1283, 1993); sqrt(2) turns the spread of a difference
+	// of two stations into that of one. Nil with fewer than
+	// MinScatterPairs pairs. StationScatterPairs is the number of pairs
+	// used.
+	StationScatterCurrent *float64 `json:"station_scatter_current_a,omitempty"`
+	StationScatterDepth   *float64 `json:"station_scatter_depth_m,omitempty"`
+	StationScatterPairs   int      `json:"station_scatter_pairs,omitempty"`
 }
 
 // Track is a further conductor followed along the route.
@@ -303,14 +363,19 @@ type Station struct {
 	// increasing chainage.
 	Point     [3]float64 `json:"point_m"`
 	Direction [3]float64 `json:"direction"`
-	// Current is signed along Direction (RMS for AC, with Phase).
+	// Current is signed along Direction (RMS for AC, with Phase and
+	// PhaseSigma, degrees; both nil for DC).
 	Current      float64  `json:"current_a"`
 	CurrentSigma float64  `json:"current_sigma_a"`
 	Phase        *float64 `json:"phase_deg,omitempty"`
+	PhaseSigma   *float64 `json:"phase_sigma_deg,omitempty"`
 	Depth        float64  `json:"depth_m"`
 	DepthSigma   float64  `json:"depth_sigma_m"`
-	// Cover is depth below ground, m, when the ground is known.
-	Cover *float64 `json:"cover_m,omitempty"`
+	// Cover is depth below ground, m, when the ground is known, and
+	// CoverSigma its one-sigma uncertainty: DepthSigma and
+	// DepthReference.GroundSigma in quadrature, as the cover findings use.
+	Cover      *float64 `json:"cover_m,omitempty"`
+	CoverSigma *float64 `json:"cover_sigma_m,omitempty"`
 	// Used is true when the station entered the step and cover checks.
 	Used bool `json:"used"`
 }

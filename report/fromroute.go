@@ -85,19 +85,74 @@ func (d *Document) routeOf(r *route.Route) *Route {
 			Used:         p.OK && !p.Dipole,
 		}
 		if p.AC {
-			ph := p.Phase
-			s.Phase = &ph
+			ph, phs := p.Phase, p.PhaseSigma
+			s.Phase, s.PhaseSigma = &ph, &phs
 		}
 		if groundKnown && s.Used {
 			c := p.Depth
 			if ref.Kind == DepthBelowSensors {
 				c -= ref.SensorHeight
 			}
-			s.Cover = &c
+			cs := math.Hypot(p.DepthSigma, ref.GroundSigma)
+			s.Cover, s.CoverSigma = &c, &cs
 		}
 		out.Stations[i] = s
 	}
+	var steps [][2]float64
+	for _, f := range r.Findings {
+		if f.Kind == route.KindCurrentStep {
+			steps = append(steps, [2]float64{f.From, f.To})
+		}
+	}
+	out.setScatter(steps)
 	return out
+}
+
+// MinScatterPairs is the fewest pairs of successive used stations from
+// which Route.StationScatterCurrent and StationScatterDepth are given.
+// With n pairs the median absolute difference estimates a normal scale
+// with a relative standard error near 1.17/sqrt(n) (Rousseeuw & Croux,
+// 1993): about 50% at five pairs, rough but far nearer the truth than
+// the fits' own sigmas when the model error dominates.
+const MinScatterPairs = 5
+
+// madScale turns a median absolute deviation into a normal standard
+// deviation: 1/Phi^-1(0.75).
+const madScale = 1.482602218505602
+
+// setScatter sets the robust between-station scatter of current and depth
+// of r (see Route.StationScatterCurrent) from successive used stations,
+// leaving out pairs whose chainage interval overlaps one of steps (the
+// chainage brackets of reported current steps).
+func (r *Route) setScatter(steps [][2]float64) {
+	r.StationScatterCurrent, r.StationScatterDepth, r.StationScatterPairs = nil, nil, 0
+	var dI, dD []float64
+	prev := -1
+	for i, s := range r.Stations {
+		if !s.Used {
+			continue
+		}
+		if prev >= 0 {
+			a, b := r.Stations[prev], s
+			straddles := false
+			for _, st := range steps {
+				if a.Chainage < st[1] && b.Chainage > st[0] {
+					straddles = true
+				}
+			}
+			if !straddles {
+				dI = append(dI, math.Abs(b.Current-a.Current))
+				dD = append(dD, math.Abs(b.Depth-a.Depth))
+			}
+		}
+		prev = i
+	}
+	if len(dI) < MinScatterPairs {
+		return
+	}
+	ci := madScale * median(dI) / math.Sqrt2
+	cd := madScale * median(dD) / math.Sqrt2
+	r.StationScatterCurrent, r.StationScatterDepth, r.StationScatterPairs = &ci, &cd, len(dI)
 }
 
 // findingOf converts one finding of the route analysis.

@@ -30,14 +30,21 @@ const (
 //     route), with length_m and stations; one more per further conductor
 //     followed along the route (Document.Conductors), with its number in
 //     "conductor" and its median offset from conductor 1 in offset_m;
-//   - "conductor": one per line source, a LineString over the stretch the
-//     readings see (a Point when that is unknown), with the group key,
-//     current, depth and their sigmas, and "conductor" when the source
-//     belongs to a further conductor;
+//   - "conductor": one Point per line source, at the point on the
+//     conductor nearest the group's readings (point_m), with the group key,
+//     chainage, current, phase, depth, cover and their sigmas, the
+//     azimuth (the conductor's bearing there, for a GIS to orient a
+//     symbol), the span of conductor the readings see along that bearing
+//     (span_m), the group's ok and problem, and "conductor": 1 for the
+//     conductor the route follows, the track's number for a further
+//     conductor, absent for a source in no track;
 //   - "object": one Point per dipole source;
 //   - "finding": one Point per finding at its position, with kind,
 //     severity, chainage range and message, and "conductor" when it is
 //     about a further conductor.
+//
+// Sigmas are written with six significant digits, so that none is rounded
+// to zero, and each value with two digits past its sigma's leading one.
 func WriteGeoJSON(w io.Writer, d *Document) error {
 	if err := d.Validate(); err != nil {
 		return err
@@ -70,37 +77,45 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 			props := map[string]any{
 				"group":         g.Key,
 				"source":        i + 1,
-				"depth_m":       round(s.Depth, 3),
-				"depth_sigma_m": round(s.DepthSigma, 3),
+				"depth_m":       roundSig(s.Depth, s.DepthSigma, 3),
+				"depth_sigma_m": sigNum(s.DepthSigma),
 				"ok":            g.OK,
+			}
+			if g.Problem != "" {
+				props["problem"] = g.Problem
 			}
 			if g.Chainage != nil {
 				props["chainage_m"] = round(*g.Chainage, 3)
 			}
-			if s.Conductor > 0 {
-				props["conductor"] = s.Conductor
+			if c := sourceConductor(d, i, &s); c > 0 {
+				props["conductor"] = c
 			}
 			if c, ok := d.cover(s.Depth); ok {
-				props["cover_m"] = round(c, 3)
+				cs := d.coverSigma(s.DepthSigma)
+				props["cover_m"] = roundSig(c, cs, 3)
+				props["cover_sigma_m"] = sigNum(cs)
 			}
-			var geom geometry
 			if s.Kind == KindDipole {
 				props["feature"] = "object"
-				geom = d.point(s.Point)
 			} else {
 				props["feature"] = "conductor"
-				props["current_a"] = round(s.Current, 4)
-				props["current_sigma_a"] = round(s.CurrentSigma, 4)
-				props["azimuth_deg"] = round(s.Azimuth, 2)
+				props["current_a"] = roundSig(s.Current, s.CurrentSigma, 4)
+				props["current_sigma_a"] = sigNum(s.CurrentSigma)
+				props["azimuth_deg"] = roundSig(s.Azimuth, s.AzimuthSigma, 2)
+				props["azimuth_sigma_deg"] = sigNum(s.AzimuthSigma)
 				if s.Phase != nil {
-					props["phase_deg"] = round(*s.Phase, 2)
+					ps := 0.0
+					if s.PhaseSigma != nil {
+						ps = *s.PhaseSigma
+						props["phase_sigma_deg"] = sigNum(ps)
+					}
+					props["phase_deg"] = roundSig(*s.Phase, ps, 2)
 				}
-				geom = d.point(s.Point)
 				if s.Span[1] > s.Span[0] {
-					a, b := along(s.Point, s.Direction, s.Span[0]), along(s.Point, s.Direction, s.Span[1])
-					geom = d.line([][3]float64{a, b})
+					props["span_m"] = []json.Number{round(s.Span[0], 3), round(s.Span[1], 3)}
 				}
 			}
+			geom := d.point(s.Point)
 			fc.Features = append(fc.Features, feature{Type: "Feature", Geometry: geom, Properties: props})
 		}
 	}
@@ -201,6 +216,13 @@ func along(p, dir [3]float64, t float64) [3]float64 {
 
 // round returns v rounded to prec decimals as a JSON number.
 func round(v float64, prec int) json.Number { return json.Number(fix(v, prec)) }
+
+// roundSig returns v as a JSON number with at least prec decimals and
+// two digits past the leading digit of its sigma (fixSig).
+func roundSig(v, sigma float64, prec int) json.Number { return json.Number(fixSig(v, sigma, prec)) }
+
+// sigNum returns a sigma as a JSON number with six significant digits.
+func sigNum(v float64) json.Number { return json.Number(sig(v)) }
 
 // routeFeature is a route's stations as a LineString, with props and the
 // route's feature, length and station count as properties.

@@ -39,10 +39,21 @@ func WriteHTML(w io.Writer, d *Document) error {
 }
 
 type view struct {
-	D          *Document
-	Title      string
-	Headline   []string
-	HowSure    string
+	D        *Document
+	Title    string
+	Headline []string
+	HowSure  string
+	// SigmaNote says that the fits' sigmas count the reading noise only;
+	// Scatter gives the between-station scatter when there is one.
+	SigmaNote string
+	Scatter   string
+	// ShowSite is true when the site name differs from the title.
+	ShowSite bool
+	// CoverNA is true when the ground is not known, so the table's cover
+	// column reads "n/a".
+	CoverNA bool
+	// InputsNA is true when an input has no readings to count.
+	InputsNA   bool
 	Counts     string
 	Findings   []findingRow
 	Cautions   []string
@@ -94,11 +105,17 @@ func newView(d *Document) (*view, error) {
 	if v.Title == "" {
 		v.Title = "Buried conductor estimate"
 	}
+	v.ShowSite = d.Site != "" && d.Site != v.Title
+	_, groundKnown := d.cover(0)
+	v.CoverNA = !groundKnown
+	for _, in := range d.Inputs {
+		v.InputsNA = v.InputsNA || in.Rows == 0
+	}
 	v.DepthRef = depthRefText(d)
 	v.CoverSigma = coverSigmaText(d)
 	v.FrameText = "local east, north, up, metres"
 	if o := d.Frame.Origin; o != nil {
-		v.FrameText += fmt.Sprintf("; origin at WGS84 %.7f°, %.7f°, %.2f m", o.Lat, o.Lon, o.H)
+		v.FrameText += fmt.Sprintf("; origin at WGS84 %s, height %.2f m", latLon(o.Lat, o.Lon, 7), o.H)
 	} else {
 		v.FrameText += "; not geo-referenced"
 	}
@@ -161,20 +178,51 @@ func coverSigmaText(d *Document) string {
 }
 
 func valueText(x Value) string {
-	s := x.Name + " " + num(x.Value)
-	if x.Sigma > 0 && !math.IsInf(x.Sigma, 0) {
-		// The value to the decimals of the sigma's two significant
-		// digits, so that the two read alike ("112.7 ± 0.18").
-		dec := max(0, 1-int(math.Floor(math.Log10(x.Sigma))))
-		s = fmt.Sprintf("%s %.*f ± %.*f", x.Name, dec, x.Value, dec, x.Sigma)
-	}
+	s := x.Name + " " + pm(x.Value, x.Sigma)
 	if x.Unit != "" {
 		s += " " + x.Unit
 	}
 	return s
 }
 
-// num formats a value with about three significant digits.
+// maxPMDecimals is the most decimals pm shows: a sigma that would need
+// more is shown as an upper bound.
+const maxPMDecimals = 4
+
+// pm formats a value and its one-sigma uncertainty for a crew to read: the
+// sigma to two significant digits and the value to the same decimal place
+// ("112.7 ± 0.18", "41.9046 ± 0.0046"), in plain decimals. A sigma that
+// would need more than maxPMDecimals decimals shows as a bound ("1.160 ±
+// <0.001"); a zero, infinite or missing sigma shows the value alone.
+func pm(v, sigma float64) string {
+	if !(sigma > 0) || math.IsInf(sigma, 0) {
+		return num(v)
+	}
+	dec := max(0, 1-int(math.Floor(math.Log10(sigma))))
+	if dec > maxPMDecimals {
+		return fix(v, maxPMDecimals-1) + " ± <" + fix(math.Pow(10, 1-maxPMDecimals), maxPMDecimals-1)
+	}
+	// Rounding can carry the sigma to one more digit (0.0996 -> 0.10):
+	// keep the value's decimals with the sigma's.
+	return fix(v, dec) + " ± " + fix(sigma, dec)
+}
+
+// sigText formats a sigma alone to two significant digits in plain
+// decimals (no exponent), or as a bound ("<0.001") when that would need
+// more than maxPMDecimals decimals.
+func sigText(sigma float64) string {
+	if !(sigma > 0) || math.IsInf(sigma, 0) {
+		return num(sigma)
+	}
+	dec := max(0, 1-int(math.Floor(math.Log10(sigma))))
+	if dec > maxPMDecimals {
+		return "<" + fix(math.Pow(10, 1-maxPMDecimals), maxPMDecimals-1)
+	}
+	return fix(sigma, dec)
+}
+
+// num formats a value with about three significant digits, in plain
+// decimals.
 func num(v float64) string {
 	a := math.Abs(v)
 	switch {
@@ -188,8 +236,23 @@ func num(v float64) string {
 		return fmt.Sprintf("%.2f", v)
 	case a >= 0.01:
 		return fmt.Sprintf("%.3f", v)
+	case a < 1e-8:
+		return "0"
 	}
-	return fmt.Sprintf("%.2g", v)
+	return fix(v, 1-int(math.Floor(math.Log10(a))))
+}
+
+// latLon writes a WGS84 position with its hemispheres, latitude first:
+// "lat 54.312511° N, lon 2.084482° W".
+func latLon(lat, lon float64, prec int) string {
+	ns, ew := "N", "E"
+	if lat < 0 {
+		ns = "S"
+	}
+	if lon < 0 {
+		ew = "W"
+	}
+	return fmt.Sprintf("lat %s° %s, lon %s° %s", fix(math.Abs(lat), prec), ns, fix(math.Abs(lon), prec), ew)
 }
 
 func (v *view) where(f Finding) string {
@@ -207,7 +270,7 @@ func (v *view) where(f Finding) string {
 	}
 	parts = append(parts, en(f.Position))
 	if lon, lat, ok := v.D.wgs84(f.Position); ok {
-		parts = append(parts, fmt.Sprintf("%.6f°, %.6f°", lat, lon))
+		parts = append(parts, latLon(lat, lon, 6))
 	}
 	if len(f.Groups) > 0 {
 		parts = append(parts, "groups "+strings.Join(f.Groups, ", "))
@@ -223,13 +286,18 @@ func (v *view) groupRow(g *Group) groupRow {
 	if g.Chainage != nil {
 		r.Chainage = fmt.Sprintf("%.1f", *g.Chainage)
 	}
-	r.Status = "ok"
-	if !g.OK {
+	switch {
+	case !g.OK:
 		r.Status = "failed"
-	}
-	if g.Problem != "" {
-		r.Status += ": " + g.Problem
-	} else {
+		if g.Problem != "" {
+			r.Status += ": " + g.Problem
+		}
+	case g.Problem != "":
+		// Converged and used, but poor or ambiguous: the route's findings
+		// say "used with care".
+		r.Status = "poor or ambiguous, used with care: " + g.Problem
+	default:
+		r.Status = "ok"
 		for _, s := range g.Sources {
 			if s.Kind == KindDipole {
 				r.Status += ", with a magnetised object beside the conductor (fitted as a point dipole)"
@@ -251,25 +319,32 @@ func (v *view) groupRow(g *Group) groupRow {
 		}
 		if s.Kind == KindDipole {
 			cur = append(cur, "object")
-			dep = append(dep, num(s.Depth)+" ± "+num(s.DepthSigma))
+			dep = append(dep, pm(s.Depth, s.DepthSigma))
+			if v.CoverNA {
+				cov = append(cov, "n/a")
+			} else {
+				cov = append(cov, "–")
+			}
 			continue
 		}
-		cur = append(cur, num(s.Current)+" ± "+num(s.CurrentSigma))
+		cur = append(cur, pm(s.Current, s.CurrentSigma))
 		if s.Phase != nil {
-			p := fmt.Sprintf("%.1f", *s.Phase)
+			ps := 0.0
 			if s.PhaseSigma != nil {
-				p += fmt.Sprintf(" ± %.1f", *s.PhaseSigma)
+				ps = *s.PhaseSigma
 			}
-			ph = append(ph, p)
+			ph = append(ph, pm(*s.Phase, ps))
 		}
-		dep = append(dep, num(s.Depth)+" ± "+num(s.DepthSigma))
+		dep = append(dep, pm(s.Depth, s.DepthSigma))
 		if c, ok := v.D.cover(s.Depth); ok {
-			cov = append(cov, num(c))
+			cov = append(cov, pm(c, v.D.coverSigma(s.DepthSigma)))
+		} else {
+			cov = append(cov, "n/a")
 		}
 		if unresolved(&s, "azimuth") {
 			az = append(az, fmt.Sprintf("%.1f (assumed)", s.Azimuth))
 		} else {
-			az = append(az, fmt.Sprintf("%.1f ± %.1f", s.Azimuth, s.AzimuthSigma))
+			az = append(az, pm(s.Azimuth, s.AzimuthSigma))
 		}
 	}
 	r.Current, r.Phase, r.Depth, r.Cover, r.Azimuth = cur, ph, dep, cov, az
@@ -374,12 +449,15 @@ func (v *view) summarise() {
 				used = append(used, s)
 			}
 		}
-		v.Headline = append(v.Headline, fmt.Sprintf("A conductor was traced for %.0f m along the route, fitted in %d of %d groups.",
-			r.Length, ok, len(d.Groups)))
+		line := fmt.Sprintf("A conductor was traced for %.0f m along the route, fitted in %d of %d groups", r.Length, ok, len(d.Groups))
+		if sound := soundGroups(d); sound < ok {
+			line += fmt.Sprintf(", %d of them soundly (see the findings for the others)", sound)
+		}
+		v.Headline = append(v.Headline, line+".")
 		if len(used) > 0 {
 			a, b := used[0], used[len(used)-1]
-			v.Headline = append(v.Headline, fmt.Sprintf("Current is %s ± %s A at chainage %.0f m and %s ± %s A at %.0f m.",
-				num(a.Current), num(a.CurrentSigma), a.Chainage, num(b.Current), num(b.CurrentSigma), b.Chainage))
+			v.Headline = append(v.Headline, fmt.Sprintf("Current is %s A at chainage %.0f m and %s A at %.0f m.",
+				pm(a.Current, a.CurrentSigma), a.Chainage, pm(b.Current, b.CurrentSigma), b.Chainage))
 			lo, hi := used[0], used[0]
 			for _, s := range used {
 				if s.Depth < lo.Depth {
@@ -397,9 +475,14 @@ func (v *view) summarise() {
 			line := fmt.Sprintf("Depth %s is %s to %s m (shallowest at chainage %.0f m)",
 				shortRef(d), num(lo.Depth), num(hi.Depth), lo.Chainage)
 			if c, ok := d.cover(lo.Depth); ok {
-				line += fmt.Sprintf("; least cover %s ± %s m", num(c), num(math.Hypot(lo.DepthSigma, d.DepthReference.GroundSigma)))
+				line += fmt.Sprintf("; least cover %s m", pm(c, d.coverSigma(lo.DepthSigma)))
 			}
 			v.Headline = append(v.Headline, line+".")
+		}
+		if r.StationScatterCurrent != nil && r.StationScatterDepth != nil {
+			v.Scatter = fmt.Sprintf("Realistic spread: neighbouring stations scatter by %s A in current (%s of the median current) and %s m in depth, one standard deviation (robust, from %d pairs of successive stations, leaving out current steps); expect a single station's current and depth to be off by up to about that much (the scatter also holds any real change between neighbouring stations), often far more than the fits' own ± figures.",
+				sigText(*r.StationScatterCurrent), pct(*r.StationScatterCurrent, medianAbsCurrent(r)), sigText(*r.StationScatterDepth), r.StationScatterPairs)
+			v.Headline = append(v.Headline, v.Scatter)
 		}
 		for _, t := range d.Conductors {
 			v.Headline = append(v.Headline, trackHeadline(d, &t))
@@ -412,11 +495,11 @@ func (v *view) summarise() {
 						i+1, en(s.Point), num(s.Depth), shortRef(d)))
 					continue
 				}
-				line := fmt.Sprintf("Conductor %d: %s ± %s A", i+1, num(s.Current), num(s.CurrentSigma))
+				line := fmt.Sprintf("Conductor %d: %s A", i+1, pm(s.Current, s.CurrentSigma))
 				if s.Phase != nil {
 					line += fmt.Sprintf(" RMS at %.0f°", *s.Phase)
 				}
-				line += fmt.Sprintf(", depth %s ± %s m %s, ", num(s.Depth), num(s.DepthSigma), shortRef(d))
+				line += fmt.Sprintf(", depth %s m %s, ", pm(s.Depth, s.DepthSigma), shortRef(d))
 				if unresolved(&s, "azimuth") {
 					line += fmt.Sprintf("crossing the traverse at %s (its direction is assumed, not measured: one traverse cannot tell).", en(s.Point))
 				} else {
@@ -435,8 +518,11 @@ func (v *view) summarise() {
 		}
 	}
 	if len(curSig) > 0 {
-		v.HowSure = fmt.Sprintf("Typical uncertainty (one standard deviation, median over the fits): current ± %s A (%.2g %%), depth ± %s m. Plots show ± two standard deviations.",
-			num(median(curSig)), 100*median(curRel), num(median(depSig)))
+		v.SigmaNote = "The ± figures of the fits (one standard deviation) count the reading noise only, " +
+			"not the error of the model: bends, a neighbouring conductor, the straight infinite line fitted " +
+			"to a real conductor, errors in the sensor positions. Real errors are often many times larger."
+		v.HowSure = fmt.Sprintf("Fit uncertainty (one standard deviation from the reading noise only, median over the fits): current ± %s A (%s %%), depth ± %s m. Plots show ± two of these standard deviations.",
+			sigText(median(curSig)), sigText(100*median(curRel)), sigText(median(depSig)))
 	}
 	if ok < len(d.Groups) {
 		v.HowSure += fmt.Sprintf(" %d of %d fits failed and are not used.", len(d.Groups)-ok, len(d.Groups))
@@ -460,10 +546,41 @@ func trackHeadline(d *Document, t *Track) string {
 	}
 	if len(used) > 0 {
 		a, b := used[0], used[len(used)-1]
-		line += fmt.Sprintf("; current %s ± %s A at %s and %s ± %s A at %s",
-			num(a.Current), num(a.CurrentSigma), a.Key, num(b.Current), num(b.CurrentSigma), b.Key)
+		line += fmt.Sprintf("; current %s A at %s and %s A at %s",
+			pm(a.Current, a.CurrentSigma), a.Key, pm(b.Current, b.CurrentSigma), b.Key)
 	}
 	return line + "."
+}
+
+// soundGroups counts the groups whose fit converged with no problem.
+func soundGroups(d *Document) int {
+	n := 0
+	for _, g := range d.Groups {
+		if g.OK && g.Problem == "" {
+			n++
+		}
+	}
+	return n
+}
+
+// pct writes part as a percentage of whole, to two significant digits.
+func pct(part, whole float64) string {
+	if whole == 0 {
+		return "n/a"
+	}
+	return sigText(100*part/whole) + " %"
+}
+
+// medianAbsCurrent is the median magnitude of current over r's used
+// stations.
+func medianAbsCurrent(r *Route) float64 {
+	var a []float64
+	for _, s := range r.Stations {
+		if s.Used {
+			a = append(a, math.Abs(s.Current))
+		}
+	}
+	return median(a)
 }
 
 func shortRef(d *Document) string {

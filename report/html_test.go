@@ -86,7 +86,7 @@ func TestHTMLSingleGroup(t *testing.T) {
 	if n := strings.Count(page, "<svg"); n != 2 {
 		t.Errorf("page has %d <svg> elements, want 2 (plan and profile)", n)
 	}
-	if !strings.Contains(page, "Conductor 1: 83.7 ± 0.600 A") || !strings.Contains(page, "No findings") {
+	if !strings.Contains(page, "Conductor 1: 83.73 ± 0.60 A") || !strings.Contains(page, "No findings") {
 		t.Errorf("summary does not state the conductor:\n%s", page[strings.Index(page, "<h2>Summary"):][:600])
 	}
 }

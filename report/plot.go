@@ -88,10 +88,29 @@ var (
 
 // svg renders p at w x h and returns inline SVG markup for the HTML report:
 // no XML prolog, sizes that scale with the page, and a font list that falls
-// back to the reader's sans-serif when Liberation Sans is absent.
+// back to the reader's sans-serif when Liberation Sans is absent. The
+// legend is drawn below the plot, in a strip added to h, so that it never
+// hides data or the labelled lines.
 func svg(p *plot.Plot, w, h vg.Length, label string) (template.HTML, error) {
-	c := vgsvg.New(w, h)
-	p.Draw(draw.New(c))
+	leg := p.Legend
+	leg.Padding = vg.Points(3)
+	lr := leg.Rectangle(draw.New(vgsvg.New(w, h)))
+	lh := lr.Max.Y - lr.Min.Y
+	total := h
+	if lh > 0 {
+		total += lh + legendGap
+	}
+	c := vgsvg.New(w, total)
+	dc := draw.New(c)
+	if lh > 0 {
+		p.Legend = plot.NewLegend()
+		p.Draw(draw.Crop(dc, 0, 0, lh+legendGap, 0))
+		p.Legend = leg
+		leg.Top, leg.Left = true, true
+		leg.Draw(draw.Crop(dc, legendIndent, 0, 0, -h-legendGap/2))
+	} else {
+		p.Draw(dc)
+	}
 	var buf bytes.Buffer
 	if _, err := c.WriteTo(&buf); err != nil {
 		return "", fmt.Errorf("report: rendering %s: %w", label, err)
@@ -101,6 +120,14 @@ func svg(p *plot.Plot, w, h vg.Length, label string) (template.HTML, error) {
 	s = strings.ReplaceAll(s, "font-family:Liberation Sans;", "font-family:'Liberation Sans',Arial,Helvetica,sans-serif;")
 	return template.HTML(s), nil // markup produced by vgsvg, not user text
 }
+
+// legendGap is the space between a plot and its legend below it, and
+// legendIndent the legend's indent from the left edge (about the width of
+// the y axis's labels).
+const (
+	legendGap    = 0.3 * vg.Centimeter
+	legendIndent = 1.6 * vg.Centimeter
+)
 
 // xy is a plotter.XYer over two slices.
 type xy struct{ x, y []float64 }
@@ -385,13 +412,11 @@ func alongPlot(d *Document, r *Route, conductor int, which string) (*plot.Plot, 
 				p.Legend.Add(name, l)
 			}
 		}
-		// Deeper is down: leave room at the bottom for the legend.
-		p.Legend.Top = false
-		padY(p, 0.05, 0.6)
+		padY(p, 0.05, 0.08)
 	}
 	// Mark current steps between their stations.
 	if which == "current" {
-		padY(p, 0.05, 0.35)
+		padY(p, 0.05, 0.1)
 		for _, f := range d.Findings {
 			if f.Kind != "current-step" || f.Conductor != conductor {
 				continue

@@ -33,10 +33,12 @@ th { background: var(--band); font-weight: 600; }
 td.num { text-align: right; white-space: nowrap; font-variant-numeric: tabular-nums; }
 tr.bad td { color: var(--muted); }
 .sev { display: inline-block; min-width: 4.8rem; text-align: center; padding: .05rem .4rem; border-radius: 3px;
-  font-size: .78rem; font-weight: 700; text-transform: uppercase; letter-spacing: .04em; color: #fff; }
-.sev-warning { background: var(--warn); }
-.sev-caution { background: var(--caut); color: var(--ink); }
-.sev-info { background: var(--info); }
+  font-size: .78rem; font-weight: 700; text-transform: uppercase; letter-spacing: .04em; color: #fff;
+  border: 1.5px solid var(--ink); -webkit-print-color-adjust: exact; print-color-adjust: exact; }
+.sev-warning { background: var(--warn); border-color: var(--warn); }
+.sev-caution { background: var(--caut); border-color: var(--caut); color: var(--ink); }
+.sev-info { background: var(--info); border-color: var(--info); }
+.note { border-left: 3px solid var(--caut); padding: .2rem .7rem; margin: .5rem 0; }
 .values { color: var(--muted); font-size: .85rem; }
 figure { margin: 1rem 0; break-inside: avoid; page-break-inside: avoid; }
 figcaption { color: var(--muted); font-size: .85rem; margin-top: .2rem; }
@@ -57,13 +59,18 @@ footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rul
   tr { break-inside: avoid; page-break-inside: avoid; }
   .wide { overflow: visible; }
   table.groups { font-size: 8pt; }
+  /* A printer may drop backgrounds whatever the page asks: the badges
+     then read as dark text in a box, the warning's box thicker. */
+  .sev, .sev-warning, .sev-caution, .sev-info { color: var(--ink); background: none; border: 1.5px solid var(--ink); }
+  .sev-warning { border-width: 3px; }
+  .sev-caution { border-style: dashed; }
 }
 </style>
 </head>
 <body>
 <header>
 <h1>{{.Title}}</h1>
-<p class="sub">{{with .D.Site}}{{.}} · {{end}}{{with .D.Created}}made {{.}} · {{end}}{{or .D.Tool.Name "undercurrent"}} {{.D.Tool.Version}}</p>
+<p class="sub">{{if .ShowSite}}{{.D.Site}} · {{end}}{{with .D.Created}}made {{.}} · {{end}}{{or .D.Tool.Name "undercurrent"}} {{.D.Tool.Version}}</p>
 </header>
 
 <section class="cautions" aria-label="cautions">
@@ -78,6 +85,7 @@ footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rul
 {{range $i, $h := .Headline}}<p{{if eq $i 0}} class="lead"{{end}}>{{$h}}</p>
 {{end}}<p>{{.Counts}}</p>
 {{with .HowSure}}<p class="howsure">{{.}}</p>{{end}}
+{{with .SigmaNote}}<p class="note">{{.}}</p>{{end}}
 {{if .Findings}}
 <table>
 <thead><tr><th>#</th><th>Severity</th><th>What</th><th>Where</th><th>Detail</th></tr></thead>
@@ -101,7 +109,7 @@ footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rul
 <figcaption>Fitted current per group with ± two standard deviations; dashed red lines mark steps in current (current leaving or joining the conductor). Current is signed along the route's direction of increasing chainage.</figcaption>
 </figure>
 <figure>{{.Depth}}
-<figcaption>Depth {{.DepthRef}}, with ± two standard deviations.{{with .DepthNote}} {{.}}{{end}}</figcaption>
+<figcaption>Fitted depth per group with ± two standard deviations. Depth is {{.DepthRef}}.{{with .DepthNote}} {{.}}{{end}}</figcaption>
 </figure>
 </section>
 {{end}}
@@ -113,7 +121,7 @@ footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rul
 <figcaption>Fitted current of conductor {{.Number}} per group with ± two standard deviations; dashed red lines mark its steps in current. Current is signed along the direction of increasing chainage.</figcaption>
 </figure>
 <figure>{{.Depth}}
-<figcaption>Depth of conductor {{.Number}} {{$.DepthRef}}, with ± two standard deviations.{{with $.DepthNote}} {{.}}{{end}}</figcaption>
+<figcaption>Fitted depth of conductor {{.Number}} per group with ± two standard deviations. Depth is {{$.DepthRef}}.{{with $.DepthNote}} {{.}}{{end}}</figcaption>
 </figure>
 </section>
 
@@ -127,12 +135,12 @@ footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rul
 <section>
 <h2>Every group</h2>
 <div class="wide"><table class="groups">
-<thead><tr><th>Group</th><th>Chainage (m)</th>{{if .D.Conductors}}<th>Conductor</th>{{end}}<th>Current (A)</th>{{if eq .D.Signal.Mode "ac"}}<th>Phase (°)</th>{{end}}<th>Depth (m)</th><th>Cover (m)</th><th>Azimuth (°)</th><th>RMS (nT)</th><th>Readings</th><th>Fit</th></tr></thead>
+<thead><tr><th>Group</th><th>Chainage (m)</th>{{if .D.Conductors}}<th>Conductor</th>{{end}}<th>Current (A)</th>{{if eq .D.Signal.Mode "ac"}}<th>Phase (°)</th>{{end}}<th>Depth (m)</th><th>Cover (m){{if .CoverNA}}*{{end}}</th><th>Azimuth (°)</th><th>RMS (nT)</th><th>Readings</th><th>Fit</th></tr></thead>
 <tbody>
 {{$ac := eq .D.Signal.Mode "ac"}}{{$tracks := .D.Conductors}}{{range .Groups}}<tr{{if .Bad}} class="bad"{{end}}><td>{{.Key}}</td><td class="num">{{.Chainage}}</td>{{if $tracks}}<td class="num">{{range $i, $v := .Conductor}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{end}}<td class="num">{{range $i, $v := .Current}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{if $ac}}<td class="num">{{range $i, $v := .Phase}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{end}}<td class="num">{{range $i, $v := .Depth}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td><td class="num">{{range $i, $v := .Cover}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td><td class="num">{{range $i, $v := .Azimuth}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td><td class="num">{{.RMS}}</td><td class="num">{{.Points}}</td><td>{{.Status}}</td></tr>
 {{end}}</tbody>
 </table></div>
-<p class="values">One line per fitted conductor, strongest first.{{if .D.Conductors}} Conductor: 1 for the one the route follows, 2, 3, ... for the further conductors followed along it, – for a source in no track.{{end}} Uncertainties are one standard deviation. Depth is {{.DepthRef}}.</p>
+<p class="values">One line per fitted conductor, strongest first.{{if .D.Conductors}} Conductor: 1 for the one the route follows, 2, 3, ... for the further conductors followed along it, – for a source in no track.{{end}} Uncertainties are one standard deviation from the reading noise only; they do not count the error of the model, which is often many times larger{{with .Scatter}} (see the realistic spread in the summary){{end}}. Depth is {{.DepthRef}}.{{if .CoverNA}} *Cover n/a: the sensors' height above the ground was not given, so the depth of cover below the ground cannot be computed (give it with --sensor-height, or the ground level with --reference-z).{{end}}</p>
 {{if .FitNotes}}<h3>Notes from the fits</h3>
 <ul class="values">
 {{range .FitNotes}}<li>{{.}}</li>
@@ -155,9 +163,10 @@ footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rul
 <table>
 <thead><tr><th>Role</th><th>File</th><th>Readings</th><th>SHA-256</th></tr></thead>
 <tbody>
-{{range .D.Inputs}}<tr><td>{{.Role}}</td><td><code>{{.Path}}</code></td><td class="num">{{if .Rows}}{{.Rows}}{{end}}</td><td><code>{{.SHA256}}</code></td></tr>
+{{range .D.Inputs}}<tr><td>{{.Role}}</td><td><code>{{.Path}}</code></td><td class="num">{{if .Rows}}{{.Rows}}{{else}}n/a{{end}}</td><td><code>{{.SHA256}}</code></td></tr>
 {{end}}</tbody>
-</table>{{end}}
+</table>{{if .InputsNA}}
+<p class="values">Readings n/a: the file holds no readings of the survey (a calibration file).</p>{{end}}{{end}}
 {{if .D.Warnings}}<h3>Warnings from the run</h3>
 <ul>
 {{range .D.Warnings}}<li>{{.}}</li>

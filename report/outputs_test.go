@@ -1,0 +1,530 @@
+package report
+
+import (
+	"bytes"
+	"encoding/csv"
+	"encoding/json"
+	"math"
+	"regexp"
+	"strconv"
+	"strings"
+	"testing"
+
+	"undercurrent/inverse/route"
+)
+
+// readCSV writes d as CSV and reads it back as maps from column name to
+// value, one per row.
+func readCSV(t *testing.T, d *Document) []map[string]string {
+	t.Helper()
+	var buf bytes.Buffer
+	if err := WriteCSV(&buf, d); err != nil {
+		t.Fatal(err)
+	}
+	recs, err := csv.NewReader(&buf).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	var out []map[string]string
+	for _, r := range recs[1:] {
+		m := map[string]string{}
+		for i, h := range recs[0] {
+			m[h] = r[i]
+		}
+		out = append(out, m)
+	}
+	return out
+}
+
+// geoFeatures writes d as GeoJSON and returns its features.
+func geoFeatures(t *testing.T, d *Document) []struct {
+	Geometry   struct{ Type string }
+	Properties map[string]any
+} {
+	t.Helper()
+	var buf bytes.Buffer
+	if err := WriteGeoJSON(&buf, d); err != nil {
+		t.Fatal(err)
+	}
+	var fc struct {
+		Features []struct {
+			Geometry   struct{ Type string }
+			Properties map[string]any
+		}
+	}
+	if err := json.Unmarshal(buf.Bytes(), &fc); err != nil {
+		t.Fatal(err)
+	}
+	return fc.Features
+}
+
+// TestPoorGroupAgreesWithFindings: a group whose chi-square against the
+// survey's noise is far above the route's limit (twoCables: G03 misfits
+// with chi-square 50 per degree of freedom at the 2 nT given) is called
+// poor by a finding, and every output says so: the group's problem (JSON),
+// the CSV problem column, the GeoJSON property and the HTML table.
+func TestPoorGroupAgreesWithFindings(t *testing.T) {
+	d, err := Build(Document{Title: "Harrow Fen substation feeders"}, twoCables(true), &BuildSettings{Noise: 2})
+	if err != nil {
+		t.Fatal(err)
+	}
+	poor := map[string]bool{}
+	for _, f := range d.Findings {
+		if f.Kind == string(route.KindPoorFit) && f.Severity != SeverityInfo && f.Conductor == 0 {
+			for _, k := range f.Groups {
+				poor[k] = true
+			}
+		}
+	}
+	if !poor["G03"] {
+		t.Fatalf("the fixture's misfit G03 is not called poor: %+v", d.Findings)
+	}
+	for _, g := range d.Groups {
+		if poor[g.Key] != (g.Problem != "") {
+			t.Errorf("%s: called poor by a finding %v, but problem %q", g.Key, poor[g.Key], g.Problem)
+		}
+		if g.ReferenceNoise != 2 || g.Noise != 2 || math.Abs(g.ReferenceChi2-g.Chi2) > 1e-9*g.Chi2 {
+			t.Errorf("%s: noise %g, reference noise %g, reference chi2 %g against chi2 %g; want 2, 2 and equal (the noise was given)",
+				g.Key, g.Noise, g.ReferenceNoise, g.ReferenceChi2, g.Chi2)
+		}
+	}
+	g := d.Groups[2]
+	if g.Key != "G03" || !g.OK || !strings.Contains(g.Problem, "chi-square per degree of freedom against the survey's reference noise of 2 nT is 50") {
+		t.Errorf("%s: ok %v, problem %q; want ok (it converged) with the chi-square reason", g.Key, g.OK, g.Problem)
+	}
+	for _, row := range readCSV(t, d) {
+		if row["group"] == "G03" && (row["problem"] != g.Problem || row["ok"] != "true" || row["reference_chi2"] != "2900" || row["dof"] != "58") {
+			t.Errorf("CSV row of G03: problem %q ok %s reference_chi2 %s dof %s", row["problem"], row["ok"], row["reference_chi2"], row["dof"])
+		}
+	}
+	var seen bool
+	for _, f := range geoFeatures(t, d) {
+		if f.Properties["group"] == "G03" {
+			seen = true
+			if f.Properties["problem"] != g.Problem {
+				t.Errorf("GeoJSON feature of G03 has problem %v", f.Properties["problem"])
+			}
+		}
+	}
+	if !seen {
+		t.Error("no GeoJSON feature for G03")
+	}
+	var buf bytes.Buffer
+	if err := WriteHTML(&buf, d); err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(buf.String(), `<tr class="bad"><td>G03</td>`) || !strings.Contains(buf.String(), "poor or ambiguous, used with care: chi-square") {
+		t.Error("the HTML table does not show G03 as a poor fit")
+	}
+	if !strings.Contains(buf.String(), "fitted in 10 of 10 groups, 9 of them soundly") {
+		t.Error("the HTML headline does not count the poor fit out of the sound ones")
+	}
+}
+
+// TestReferenceChi2Estimated: with the noise estimated from each fit's
+// residuals, a fit's own chi-square equals its degrees of freedom; the
+// group carries the chi-square against the median noise of the groups,
+// Chi2 (sigma_own / sigma_ref)^2.
+func TestReferenceChi2Estimated(t *testing.T) {
+	fits := twoCables(false)
+	for i := range fits {
+		r := *fits[i].Result
+		r.Sigma, r.Chi2 = 2, float64(r.DOF)
+		if i == 4 {
+			r.Sigma = 20 // ten times the others' noise
+		}
+		fits[i].Result = &r
+	}
+	d, err := Build(Document{}, fits, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, g := range d.Groups {
+		want := float64(g.DOF)
+		if g.Key == "G05" {
+			want *= 100
+		}
+		if g.ReferenceNoise != 2 || math.Abs(g.ReferenceChi2-want) > 1e-9*want {
+			t.Errorf("%s: reference noise %g nT, reference chi2 %g; want 2 nT, %g", g.Key, g.ReferenceNoise, g.ReferenceChi2, want)
+		}
+		if (g.Key == "G05") != (g.Problem != "") {
+			t.Errorf("%s: problem %q", g.Key, g.Problem)
+		}
+	}
+}
+
+func TestPoorReasons(t *testing.T) {
+	for _, tc := range []struct {
+		msg  string
+		want []string
+	}{
+		{"fit at T24 (chainage 115.2 m) is poor or ambiguous (chi-square per degree of freedom is 37 (limit 4): the model or the noise level does not match the readings); used with care",
+			[]string{"chi-square per degree of freedom is 37 (limit 4): the model or the noise level does not match the readings"}},
+		{"fit at T19 (chainage 90.0 m) is poor or ambiguous (a; b (c; d)); not used", []string{"a", "b (c; d)"}},
+		{"something else", []string{"something else"}},
+	} {
+		got := poorReasons(tc.msg)
+		if strings.Join(got, "|") != strings.Join(tc.want, "|") {
+			t.Errorf("poorReasons(%q) = %q, want %q", tc.msg, got, tc.want)
+		}
+	}
+}
+
+// TestStationScatter checks the between-station scatter on stations with
+// a known answer: currents alternating 10.0 and 10.3 A, depths 1.00 and
+// 1.02 m, so every successive difference is 0.3 A and 0.02 m and the
+// scatter is 1.4826 * 0.3 / sqrt(2) A and 1.4826 * 0.02 / sqrt(2) m
+// (Rousseeuw & Croux 1993, the normal-consistent MAD). A current step
+// (+5 A between the 6th and 7th station) and a station not used (wild
+// values) must not enter it.
+func TestStationScatter(t *testing.T) {
+	var r Route
+	for i := range 12 {
+		s := Station{Key: strconv.Itoa(i), Chainage: 5 * float64(i), Current: 10, Depth: 1, Used: true}
+		if i%2 == 1 {
+			s.Current, s.Depth = 10.3, 1.02
+		}
+		if i >= 6 {
+			s.Current += 5
+		}
+		if i == 9 {
+			s.Current, s.Depth, s.Used = 80, 4, false
+		}
+		r.Stations = append(r.Stations, s)
+	}
+	// Pairs: 0-1 ... 4-5, (5-6 straddles the step), 6-7, 7-8, (9 unused:
+	// 8-10 is one pair), 8-10 differs by 0 A and 0 m, 10-11.
+	r.setScatter([][2]float64{{25, 30}})
+	if r.StationScatterCurrent == nil || r.StationScatterDepth == nil {
+		t.Fatal("no scatter")
+	}
+	if r.StationScatterPairs != 9 {
+		t.Errorf("%d pairs, want 9", r.StationScatterPairs)
+	}
+	// Median of eight 0.3 A differences and one 0 A one: 0.3 A.
+	wantI, wantD := 1.4826*0.3/math.Sqrt2, 1.4826*0.02/math.Sqrt2
+	if math.Abs(*r.StationScatterCurrent-wantI) > 1e-4*wantI || math.Abs(*r.StationScatterDepth-wantD) > 1e-4*wantD {
+		t.Errorf("scatter %.6f A, %.6f m; want %.6f A, %.6f m", *r.StationScatterCurrent, *r.StationScatterDepth, wantI, wantD)
+	}
+	// Too few pairs: no scatter.
+	r.Stations = r.Stations[:MinScatterPairs]
+	r.setScatter(nil)
+	if r.StationScatterCurrent != nil || r.StationScatterPairs != 0 {
+		t.Errorf("scatter from %d pairs, want none below %d", MinScatterPairs-1, MinScatterPairs)
+	}
+}
+
+// TestStationScatterBuild: along the Kestrel Moor fixture (eight stations,
+// one current step) the scatter comes from the six pairs that do not
+// straddle the step, and it is in the document's JSON, with the note that
+// the fits' sigmas count the reading noise only.
+func TestStationScatterBuild(t *testing.T) {
+	d, err := Build(Document{}, kestrelMoor(t), &BuildSettings{Noise: 2})
+	if err != nil {
+		t.Fatal(err)
+	}
+	r := d.Route
+	if r.StationScatterPairs != 6 || r.StationScatterCurrent == nil || *r.StationScatterCurrent > 0.2 {
+		t.Fatalf("scatter %v A from %d pairs; want six pairs and well under the 0.6 A step", r.StationScatterCurrent, r.StationScatterPairs)
+	}
+	var buf bytes.Buffer
+	if err := WriteJSON(&buf, d); err != nil {
+		t.Fatal(err)
+	}
+	for _, want := range []string{`"station_scatter_current_a": `, `"station_scatter_depth_m": `, `"uncertainty_note": "Every fitted sigma`, "reading noise only"} {
+		if !strings.Contains(buf.String(), want) {
+			t.Errorf("results.json lacks %q", want)
+		}
+	}
+	buf.Reset()
+	if err := WriteHTML(&buf, d); err != nil {
+		t.Fatal(err)
+	}
+	for _, want := range []string{"Realistic spread: neighbouring stations scatter by", "count the reading noise only"} {
+		if !strings.Contains(buf.String(), want) {
+			t.Errorf("the HTML lacks %q", want)
+		}
+	}
+}
+
+// TestCoverSigmaEverywhere: with a ground sigma, every output carries the
+// cover sigma, the depth sigma and the ground sigma in quadrature.
+func TestCoverSigmaEverywhere(t *testing.T) {
+	fits := kestrelMoor(t)
+	d, err := Build(Document{}, fits, &BuildSettings{Noise: 2, SensorHeight: 0.3, GroundSigma: 0.02})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, s := range d.Route.Stations {
+		if s.CoverSigma == nil || math.Abs(*s.CoverSigma-math.Hypot(s.DepthSigma, 0.02)) > 1e-15 {
+			t.Fatalf("%s: cover sigma %v, want hypot(%g, 0.02)", s.Key, s.CoverSigma, s.DepthSigma)
+		}
+	}
+	for _, row := range readCSV(t, d) {
+		ds, _ := strconv.ParseFloat(row["depth_sigma_m"], 64)
+		cs, err := strconv.ParseFloat(row["cover_sigma_m"], 64)
+		if err != nil || math.Abs(cs-math.Hypot(ds, 0.02)) > 1e-6 {
+			t.Errorf("CSV %s: cover_sigma_m %q, depth_sigma_m %g", row["group"], row["cover_sigma_m"], ds)
+		}
+	}
+	for _, f := range geoFeatures(t, d) {
+		if f.Properties["feature"] == "conductor" {
+			if cs, ok := f.Properties["cover_sigma_m"].(float64); !ok || cs < 0.02 {
+				t.Errorf("GeoJSON %v: cover_sigma_m %v", f.Properties["group"], f.Properties["cover_sigma_m"])
+			}
+		}
+	}
+}
+
+// TestStationPhaseSigma: AC stations carry their phase sigma.
+func TestStationPhaseSigma(t *testing.T) {
+	fits := kestrelMoor(t)
+	for i := range fits {
+		r := *fits[i].Result
+		r.Sources = append(r.Sources[:0:0], r.Sources...)
+		r.Sources[0].Phase, r.Sources[0].PhaseSigma = 12, 0.25
+		fits[i].Result = &r
+	}
+	// Mark the run as AC without refitting: the stations only need AC.
+	for i := range fits {
+		p := *fits[i].Problem
+		p.Phasors = make([][3]complex128, len(p.Points))
+		fits[i].Problem = &p
+	}
+	d, err := Build(Document{}, fits, &BuildSettings{Noise: 2, ProfileMax: -1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, s := range d.Route.Stations {
+		if s.PhaseSigma == nil || *s.PhaseSigma != 0.25 {
+			t.Errorf("%s: phase sigma %v, want 0.25", s.Key, s.PhaseSigma)
+		}
+	}
+}
+
+// TestSmallSigmasKept: a nonzero sigma is never written as zero, and the
+// value keeps the digits its sigma resolves.
+func TestSmallSigmasKept(t *testing.T) {
+	d := fenwickLane(true)
+	s := &d.Groups[0].Sources[0]
+	s.Current, s.CurrentSigma = 41.904574, 0.0046
+	s.Depth, s.DepthSigma = 1.1601234, 9.4e-5
+	s.AzimuthSigma, s.OffsetSigma, s.DipSigma = 3e-4, 2e-5, 1e-6
+	row := readCSV(t, d)[0]
+	for col, want := range map[string]float64{
+		"current_sigma_a": 0.0046, "depth_sigma_m": 9.4e-5, "azimuth_sigma_deg": 3e-4,
+		"offset_sigma_m": 2e-5, "dip_sigma_deg": 1e-6,
+	} {
+		got, err := strconv.ParseFloat(row[col], 64)
+		if err != nil || got != want {
+			t.Errorf("CSV %s = %q, want %g", col, row[col], want)
+		}
+	}
+	if row["current_a"] != "41.90457" || row["depth_m"] != "1.1601234" {
+		t.Errorf("CSV current %s A, depth %s m; want 41.90457 and 1.1601234", row["current_a"], row["depth_m"])
+	}
+	for _, f := range geoFeatures(t, d) {
+		if f.Properties["feature"] == "conductor" && f.Properties["group"] == "T01" {
+			if f.Properties["depth_sigma_m"] != 9.4e-5 || f.Properties["current_sigma_a"] != 0.0046 {
+				t.Errorf("GeoJSON sigmas %v m, %v A", f.Properties["depth_sigma_m"], f.Properties["current_sigma_a"])
+			}
+		}
+	}
+}
+
+// TestPM: a value and its sigma are shown to the same decimal place, the
+// sigma to two significant digits, in plain decimals.
+func TestPM(t *testing.T) {
+	for _, tc := range []struct {
+		v, s float64
+		want string
+	}{
+		{41.904574, 0.0046, "41.9046 ± 0.0046"},
+		{-25.01842, 0.0043, "-25.0184 ± 0.0043"},
+		{87.08412, 0.0068, "87.0841 ± 0.0068"},
+		{1.80123, 0.0026, "1.8012 ± 0.0026"},
+		{1.1601234, 9.4e-5, "1.160 ± <0.001"},
+		{112.71, 0.18, "112.71 ± 0.18"},
+		{1234.4, 56, "1234 ± 56"},
+		{0.403, 0.0200, "0.403 ± 0.020"},
+		{5.5, 0, "5.50"},
+	} {
+		if got := pm(tc.v, tc.s); got != tc.want {
+			t.Errorf("pm(%g, %g) = %q, want %q", tc.v, tc.s, got, tc.want)
+		}
+	}
+	for _, tc := range []struct {
+		s    float64
+		want string
+	}{{0.0076, "0.0076"}, {9.4e-5, "<0.001"}, {0.018, "0.018"}, {2.5e-4, "<0.001"}} {
+		if got := sigText(tc.s); got != tc.want {
+			t.Errorf("sigText(%g) = %q, want %q", tc.s, got, tc.want)
+		}
+	}
+	if got := num(9.4e-5); strings.Contains(got, "e") {
+		t.Errorf("num(9.4e-5) = %q: an exponent in a crew table", got)
+	}
+}
+
+// TestHTMLNoExponents: the crew report's text (outside the plots) has no
+// number in scientific notation and no sigma shown as zero.
+func TestHTMLNoExponents(t *testing.T) {
+	d := fenwickLane(true)
+	for i := range d.Groups {
+		s := &d.Groups[i].Sources[0]
+		s.CurrentSigma, s.DepthSigma, s.AzimuthSigma = 0.0046, 9.4e-5, 0.004
+	}
+	for i := range d.Route.Stations {
+		d.Route.Stations[i].CurrentSigma, d.Route.Stations[i].DepthSigma = 0.0046, 9.4e-5
+	}
+	var buf bytes.Buffer
+	if err := WriteHTML(&buf, d); err != nil {
+		t.Fatal(err)
+	}
+	// Plots and checksums (<code>, hexadecimal) aside.
+	text := regexp.MustCompile(`(?s)<svg.*?</svg>|<code>.*?</code>`).ReplaceAllString(buf.String(), "")
+	if m := regexp.MustCompile(`\d[eE][-+]?\d`).FindString(text); m != "" {
+		t.Errorf("the report shows a number in scientific notation (%q)", m)
+	}
+	if m := regexp.MustCompile(`± 0\.0+(\D|$)`).FindString(text); m != "" {
+		t.Errorf("the report shows a sigma rounded to zero (%q)", m)
+	}
+}
+
+// TestCSVConductorColumn: each CSV row names the conductor along the route
+// its source is, as the JSON does (Source.Conductor) and the HTML's
+// findings ("conductor 2") do.
+func TestCSVConductorColumn(t *testing.T) {
+	d, err := Build(Document{}, twoCables(true), &BuildSettings{Noise: 2})
+	if err != nil {
+		t.Fatal(err)
+	}
+	rows := readCSV(t, d)
+	if len(rows) != 20 {
+		t.Fatalf("%d rows, want 20", len(rows))
+	}
+	for _, r := range rows {
+		want := map[string]string{"1": "1", "2": "2"}[r["source"]]
+		if r["conductor"] != want {
+			t.Errorf("%s source %s: conductor %q, want %q", r["group"], r["source"], r["conductor"], want)
+		}
+	}
+	// A source in no track has an empty conductor.
+	d, err = Build(Document{}, twoCables(true), &BuildSettings{Noise: 2, TrackMinStations: -1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, r := range readCSV(t, d) {
+		if r["source"] == "2" && r["conductor"] != "" {
+			t.Errorf("%s source 2 in no track: conductor %q", r["group"], r["conductor"])
+		}
+	}
+}
+
+// TestGeoJSONStationsArePoints: each conductor at a station is a Point at
+// the fitted conductor (README: stations as Points), whatever its span,
+// with its bearing and span as properties.
+func TestGeoJSONStationsArePoints(t *testing.T) {
+	n := 0
+	for _, f := range geoFeatures(t, fenwickLane(true)) {
+		if f.Properties["feature"] != "conductor" {
+			continue
+		}
+		n++
+		if f.Geometry.Type != "Point" || f.Properties["azimuth_deg"] == nil || f.Properties["span_m"] == nil {
+			t.Errorf("conductor feature %v: %s with azimuth %v, span %v; want a Point with both",
+				f.Properties["group"], f.Geometry.Type, f.Properties["azimuth_deg"], f.Properties["span_m"])
+		}
+	}
+	if n != 12 {
+		t.Errorf("%d conductor features, want 12", n)
+	}
+}
+
+// TestSeverityBadgesPrint: browsers print without backgrounds unless told
+// otherwise (CSS Color Adjustment Module Level 1, print-color-adjust), so
+// the badges ask for exact colours and, in print, read as dark text in a
+// border without relying on the background.
+func TestSeverityBadgesPrint(t *testing.T) {
+	var buf bytes.Buffer
+	if err := WriteHTML(&buf, fenwickLane(false)); err != nil {
+		t.Fatal(err)
+	}
+	page := buf.String()
+	for _, want := range []string{"print-color-adjust: exact", "-webkit-print-color-adjust: exact"} {
+		if !strings.Contains(page, want) {
+			t.Errorf("the page lacks %q", want)
+		}
+	}
+	print := page[strings.Index(page, "@media print"):]
+	if !regexp.MustCompile(`\.sev[^{]*\{[^}]*color: var\(--ink\)[^}]*background: none[^}]*border:`).MatchString(print) {
+		t.Error("the print style does not give the badges dark text and a border without background")
+	}
+}
+
+// TestHTMLPolish covers the crew report's small defects: n/a with a reason
+// where the ground is unknown or a file holds no readings, a readable depth
+// caption, labelled latitude and longitude, the site not repeated when it
+// is the title, and plot legends clear of the data.
+func TestHTMLPolish(t *testing.T) {
+	d := fenwickLane(true)
+	d.DepthReference.SensorHeight = 0
+	d.MinCover = nil
+	d.Site = d.Title
+	d.Inputs = append(d.Inputs, Input{Role: "calibration", Path: "rover-cal.json"})
+	var buf bytes.Buffer
+	if err := WriteHTML(&buf, d); err != nil {
+		t.Fatal(err)
+	}
+	page := buf.String()
+	for _, want := range []string{
+		`<td class="num">n/a</td>`,
+		"*Cover n/a: the sensors' height above the ground was not given",
+		"Readings n/a: the file holds no readings",
+		"Fitted depth per group with ± two standard deviations. Depth is below the sensors",
+		"lat 52.47", "° N, lon 0.16", "° E",
+	} {
+		if !strings.Contains(page, want) {
+			t.Errorf("the page lacks %q", want)
+		}
+	}
+	if strings.Contains(page, "not computed, with ±") {
+		t.Error("the depth caption is garbled")
+	}
+	if n := strings.Count(page, d.Title); n != 2 { // <title> and <h1>
+		t.Errorf("the title appears %d times, want 2 (title and heading)", n)
+	}
+	if got := latLon(54.312511, -2.084482, 6); got != "lat 54.312511° N, lon 2.084482° W" {
+		t.Errorf("latLon = %q", got)
+	}
+}
+
+// TestPlotLegendBelow: the legend is drawn below the plot area, so that it
+// covers no data, ground or minimum-cover line: every legend label's
+// height on the canvas is below the bottom of the plot's background.
+func TestPlotLegendBelow(t *testing.T) {
+	d := fenwickLane(false)
+	_, dep, err := alongPlots(d, d.Route, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	s := string(dep)
+	// vgsvg draws with y up: the first white rectangle is the plot's
+	// background, "M0,Y0L..." with Y0 its bottom.
+	m := regexp.MustCompile(`<path d="M0,([0-9.]+)L[^"]*" style="fill:#FFFFFF"`).FindStringSubmatch(s)
+	if m == nil {
+		t.Fatal("no plot background")
+	}
+	bottom, _ := strconv.ParseFloat(m[1], 64)
+	for _, label := range []string{"ground", "minimum cover 0.60 m (NEC Table 300.5)"} {
+		m := regexp.MustCompile(`<text x="[0-9.]+" y="(-?[0-9.]+)" transform="scale\(1, -1\)"\s+style="[^"]*">` + regexp.QuoteMeta(label) + `</text>`).FindStringSubmatch(s)
+		if m == nil {
+			t.Errorf("no legend label %q", label)
+			continue
+		}
+		y, _ := strconv.ParseFloat(m[1], 64)
+		if -y >= bottom {
+			t.Errorf("legend label %q at height %.1f, inside the plot (its bottom is at %.1f)", label, -y, bottom)
+		}
+	}
+}
