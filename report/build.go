@@ -179,6 +179,7 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 	if d.DepthReference.Kind == DepthBelowSensors {
 		rs.SensorHeight = bs.SensorHeight
 	}
+	rs.DepthsBelowGround = d.DepthReference.Kind == DepthBelowGround
 	if refSigma == 0 {
 		rs.MaxReducedChi2 = -1
 	}
@@ -293,6 +294,12 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int) (Group, route
 		st.Current, st.CurrentSigma = s.Current, s.CurrentSigma
 		st.Phase, st.PhaseSigma = s.Phase, s.PhaseSigma
 		st.Depth, st.DepthSigma = s.Depth, s.DepthSigma
+		for _, o := range res.Sources[1:] {
+			if o.Kind != KindDipole && sound(&o) {
+				st.Further = append(st.Further, route.Line{Point: o.Point, Dir: o.Dir,
+					Current: o.Current, CurrentSigma: o.CurrentSigma, Depth: o.Depth, DepthSigma: o.DepthSigma})
+			}
+		}
 		if profileMax > 0 {
 			if p, err := buildProfile(f, profileMax); err == nil {
 				g.Profile = p
@@ -339,7 +346,11 @@ func markPoorGroups(groups []Group, r *route.Route) {
 				continue
 			}
 			g := &groups[i]
-			for _, why := range poorReasons(f.Message) {
+			reasons := f.Reasons
+			if len(reasons) == 0 {
+				reasons = []string{f.Message}
+			}
+			for _, why := range reasons {
 				if g.ReferenceNoise > 0 {
 					why = strings.Replace(why, "chi-square per degree of freedom is ",
 						"chi-square per degree of freedom against the survey's reference noise of "+sig(g.ReferenceNoise)+" nT is ", 1)
@@ -353,35 +364,6 @@ func markPoorGroups(groups []Group, r *route.Route) {
 			}
 		}
 	}
-}
-
-// poorReasons takes the reasons out of a poor-fit finding's message, "fit
-// at T19 (chainage 90.0 m) is poor or ambiguous (REASON; REASON); used with
-// care"; it returns the whole message when it is not in that form.
-func poorReasons(msg string) []string {
-	const open, tail = "is poor or ambiguous (", "); "
-	i, j := strings.Index(msg, open), strings.LastIndex(msg, tail)
-	if i < 0 || j < i+len(open) {
-		return []string{msg}
-	}
-	var out []string
-	depth, start := 0, i+len(open)
-	body := msg[start:j]
-	from := 0
-	for k, c := range body {
-		switch c {
-		case '(':
-			depth++
-		case ')':
-			depth--
-		case ';':
-			if depth == 0 {
-				out = append(out, strings.TrimSpace(body[from:k]))
-				from = k + 1
-			}
-		}
-	}
-	return append(out, strings.TrimSpace(body[from:]))
 }
 
 // ambiguity says when the number of conductors is not clear: another

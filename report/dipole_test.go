@@ -145,7 +145,7 @@ func BenchmarkBuildMagnetisedObject(b *testing.B) {
 // returns the finding's values by name.
 func checkObject(t *testing.T, f Finding, obj, moment [3]float64) map[string]Value {
 	t.Helper()
-	want := map[string]float64{"east": obj[0], "north": obj[1], "depth": -obj[2],
+	want := map[string]float64{"east": obj[0], "north": obj[1], "depth below sensors": -obj[2],
 		"moment": math.Sqrt(moment[0]*moment[0] + moment[1]*moment[1] + moment[2]*moment[2])}
 	vals := map[string]Value{}
 	for _, v := range f.Values {

@@ -153,23 +153,6 @@ func TestReferenceChi2Estimated(t *testing.T) {
 	}
 }
 
-func TestPoorReasons(t *testing.T) {
-	for _, tc := range []struct {
-		msg  string
-		want []string
-	}{
-		{"fit at T24 (chainage 115.2 m) is poor or ambiguous (chi-square per degree of freedom is 37 (limit 4): the model or the noise level does not match the readings); used with care",
-			[]string{"chi-square per degree of freedom is 37 (limit 4): the model or the noise level does not match the readings"}},
-		{"fit at T19 (chainage 90.0 m) is poor or ambiguous (a; b (c; d)); not used", []string{"a", "b (c; d)"}},
-		{"something else", []string{"something else"}},
-	} {
-		got := poorReasons(tc.msg)
-		if strings.Join(got, "|") != strings.Join(tc.want, "|") {
-			t.Errorf("poorReasons(%q) = %q, want %q", tc.msg, got, tc.want)
-		}
-	}
-}
-
 // TestStationScatter checks the between-station scatter on stations with
 // a known answer: currents alternating 10.0 and 10.3 A, depths 1.00 and
 // 1.02 m, so every successive difference is 0.3 A and 0.02 m and the

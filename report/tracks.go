@@ -290,6 +290,7 @@ func trackStation(f *Fit, j int, primary *route.Placed) route.Station {
 	st.Phase, st.PhaseSigma = s.Phase, s.PhaseSigma
 	st.Depth, st.DepthSigma = s.Depth, s.DepthSigma
 	st.Dipole, st.Object = false, nil
+	st.Further = nil // the primary's further sources, judged on the primary route
 	if f.lineObject != nil && j == f.objectLine {
 		// The object found beside this conductor (checkTrackDipoles):
 		// reported on its track and left out of its current and cover.

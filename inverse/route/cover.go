@@ -27,7 +27,7 @@ func cover(ps []Placed, set *Settings) []Finding {
 		if !p.usable() {
 			continue
 		}
-		c, sc := p.Depth-set.SensorHeight, coverSigma(p, set)
+		c, sc := set.cover(p.Depth, p.DepthSigma)
 		if c-k*sc >= set.MinCover {
 			flush()
 			continue
@@ -41,12 +41,6 @@ func cover(ps []Placed, set *Settings) []Finding {
 	return out
 }
 
-// coverSigma is the one-sigma uncertainty of a station's cover: its depth
-// sigma and Settings.GroundSigma in quadrature.
-func coverSigma(p *Placed, set *Settings) float64 {
-	return math.Hypot(p.DepthSigma, set.GroundSigma)
-}
-
 func coverFinding(run []*Placed, sev Severity, set *Settings, single bool) Finding {
 	low := run[0]
 	for _, p := range run[1:] {
@@ -54,19 +48,21 @@ func coverFinding(run []*Placed, sev Severity, set *Settings, single bool) Findi
 			low = p
 		}
 	}
-	c, sc := low.Depth-set.SensorHeight, coverSigma(low, set)
-	code := "given (no code named)"
+	c, sc := set.cover(low.Depth, low.DepthSigma)
+	code := "no code named"
 	if set.CoverCode != "" {
-		code = "of " + set.CoverCode
+		code = set.CoverCode
 	}
-	where := "at " + at(low, single)
-	if len(run) > 1 {
-		where = fmt.Sprintf("from %s (chainage %.1f m) to %s (%.1f m), shallowest at %s",
-			label(run[0]), run[0].Chainage, label(run[len(run)-1]), run[len(run)-1].Chainage, label(low))
-	}
-	verdict := "may be shallower than"
+	verdict := "may be less than"
 	if sev == SeverityWarning {
-		verdict = "is shallower than"
+		verdict = "is less than"
+	}
+	minimum := fmt.Sprintf("the %.2f m minimum (%s)", math.Abs(set.MinCover), code)
+	msg := fmt.Sprintf("cover at %s is %s m: it %s %s", at(low, single), pm(c, sc), verdict, minimum)
+	if len(run) > 1 {
+		msg = fmt.Sprintf("cover %s %s from %s (chainage %.1f m) to %s (%.1f m); shallowest at %s (chainage %.1f m): %s m",
+			verdict, minimum, label(run[0]), run[0].Chainage, label(run[len(run)-1]), run[len(run)-1].Chainage,
+			label(low), low.Chainage, pm(c, sc))
 	}
 	keys := make([]string, len(run))
 	for i, p := range run {
@@ -79,8 +75,7 @@ func coverFinding(run []*Placed, sev Severity, set *Settings, single bool) Findi
 		To:       run[len(run)-1].Chainage,
 		Position: low.Point,
 		Keys:     keys,
-		Message: fmt.Sprintf("cover %s m %s %s the %.2f m minimum %s",
-			pm(c, sc), where, verdict, math.Abs(set.MinCover), code),
+		Message:  msg,
 		Values: []Value{
 			{Name: "cover", Value: c, Sigma: sc, Unit: "m"},
 			{Name: "minimum cover", Value: set.MinCover, Unit: "m"},

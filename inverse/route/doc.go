@@ -5,7 +5,7 @@
 // time window), each holding the fitted point on the conductor, its
 // direction, current and depth with their one-sigma uncertainties. Build
 // orders the stations along the fitted route, measures chainage along it and
-// looks for four things:
+// looks for five things:
 //
 //   - steps in current: current leaving the conductor between two stations
 //     (a coating defect, a leak to earth, a tee), and stations whose current
@@ -20,7 +20,15 @@
 //     the object's position in Station.Object); package report refits the
 //     groups this package reports as current anomalies or poor fits with a
 //     point dipole beside the conductor. A current anomaly at a station
-//     already reported as a poor fit is not reported twice.
+//     already reported as a poor fit is not reported twice. The object's
+//     depth is given below ground when the ground is known, else below the
+//     sensors, saying so (Settings.DepthsBelowGround);
+//   - weak, steep further sources (Station.Further): a line under 10% of
+//     the station's current dipping more than 45 degrees is more likely
+//     the fit absorbing a bend or a change of depth of the conductor than
+//     another conductor. It is reported, not checked for cover, and a
+//     caution when, were it a conductor, it may lie shallower than the
+//     minimum cover (weakSources).
 //
 // # Ordering and chainage
 //

@@ -20,6 +20,10 @@ const (
 	// KindDipole is a station whose field is better explained by a
 	// magnetised object than by a current.
 	KindDipole Kind = "dipole-anomaly"
+	// KindWeakSource is a weak, steep further line source of a station's
+	// fit: more likely the fit absorbing a bend or a change of depth than
+	// a conductor, but shallow if it is one.
+	KindWeakSource Kind = "weak-source"
 )
 
 // Severity ranks findings for a crew.
@@ -80,4 +84,8 @@ type Finding struct {
 	Message string
 	// Values are the numbers behind the finding.
 	Values []Value
+	// Reasons are the separate reasons of a poor-fit caution, each a
+	// clause of Message (the fit's own problem first); nil for other
+	// findings.
+	Reasons []string
 }

@@ -14,26 +14,20 @@ func quality(ps []Placed, set *Settings) []Finding {
 	for i := range ps {
 		p := &ps[i]
 		if p.Dipole {
-			out = append(out, dipoleFinding(p, len(ps) == 1))
+			out = append(out, dipoleFinding(p, set, len(ps) == 1))
 		}
 		var why []string
 		var vals []Value
 		minor := p.OK && p.Problem == "" && p.Signal > 0 && p.RMS <= set.minorMisfit()*p.Signal
-		if !p.OK {
-			why = append(why, "the fit failed")
-		}
-		if p.Problem != "" {
-			why = append(why, p.Problem)
-		}
 		chi := 0.0
 		if p.DOF > 0 && maxChi > 0 && p.Chi2 > 0 {
 			if r := p.Chi2 / float64(p.DOF); r > maxChi {
 				chi = r
-				why = append(why, fmt.Sprintf("chi-square per degree of freedom is %.3g (limit %.3g): the model or the noise level does not match the readings", r, maxChi))
+				why = append(why, fmt.Sprintf("chi-square per degree of freedom is %.3g, over the limit of %.3g, so the model or the noise level does not match the readings", r, maxChi))
 				vals = append(vals, Value{Name: "reduced chi-square", Value: r, Unit: ""})
 			}
 		}
-		if len(why) == 0 {
+		if p.OK && p.Problem == "" && len(why) == 0 {
 			continue
 		}
 		bend, turn := bendAt(ps, i, maxChi)
@@ -62,9 +56,9 @@ func quality(ps []Placed, set *Settings) []Finding {
 		if bend != "" && (chi > 0 || !p.OK) {
 			why = append(why, bend+", which one straight line cannot follow")
 		}
-		use := "used with care"
+		use := "its estimates are used with care"
 		if !p.usable() {
-			use = "not used"
+			use = "it is left out of the current and cover profile"
 		}
 		out = append(out, Finding{
 			Kind:     KindPoorFit,
@@ -72,17 +66,65 @@ func quality(ps []Placed, set *Settings) []Finding {
 			From:     p.Chainage, To: p.Chainage,
 			Position: p.Point,
 			Keys:     []string{p.Key},
-			Message: fmt.Sprintf("fit at %s is poor or ambiguous (%s); %s",
-				at(p, len(ps) == 1), strings.Join(why, "; "), use),
-			Values: vals,
+			Message:  fmt.Sprintf("%s; %s", poorHead(p, len(ps) == 1, why), use),
+			Values:   vals,
+			Reasons:  poorReasons(p, why),
 		})
 	}
 	return out
 }
 
+// poorHead says what is wrong with the fit at station p: that it failed
+// or is poor or ambiguous, with the caller's Problem and the further
+// reasons why, each said once. A Problem that already speaks of the fit
+// ("the fit failed: ...", "the fit did not converge (...)") is not
+// repeated after "fit at X failed".
+func poorHead(p *Placed, single bool, why []string) string {
+	head := "fit at " + at(p, single)
+	prob := p.Problem
+	switch {
+	case strings.HasPrefix(prob, "the fit failed"):
+		head += " failed" + strings.TrimPrefix(prob, "the fit failed")
+		prob = ""
+	case strings.HasPrefix(prob, "the fit "):
+		head += " " + strings.TrimPrefix(prob, "the fit ")
+		prob = ""
+	case !p.OK:
+		head += " failed"
+	case prob != "":
+		head += " is poor or ambiguous"
+	default:
+		head += " is poor"
+	}
+	if prob != "" {
+		why = append([]string{prob}, why...)
+	}
+	if len(why) == 0 {
+		return head
+	}
+	sep := ": "
+	if strings.Contains(head, ":") {
+		sep = "; "
+	}
+	return head + sep + strings.Join(why, "; ")
+}
+
+// poorReasons lists the reasons of a poor-fit caution at station p: its
+// Problem, or that the fit failed, then the further reasons why.
+func poorReasons(p *Placed, why []string) []string {
+	out := make([]string, 0, len(why)+1)
+	switch {
+	case p.Problem != "":
+		out = append(out, p.Problem)
+	case !p.OK:
+		out = append(out, "the fit failed")
+	}
+	return append(out, why...)
+}
+
 // dipoleFinding reports a station whose field is better explained with a
 // magnetised object, placed at the object when its position is known.
-func dipoleFinding(p *Placed, single bool) Finding {
+func dipoleFinding(p *Placed, set *Settings, single bool) Finding {
 	f := Finding{
 		Kind:     KindDipole,
 		Severity: SeverityInfo,
@@ -97,16 +139,18 @@ func dipoleFinding(p *Placed, single bool) Finding {
 		return f
 	}
 	f.Position = o.Point
-	f.Message = fmt.Sprintf("a magnetised object (a buried steel or iron item), not a current: a point dipole %.1f m from the conductor at %s, %s m deep, explains the field (information criterion lower by %.0f); it is left out of the current and cover profile",
-		o.Distance, at(p, single), pm(o.Depth, o.DepthSigma), o.Evidence)
+	f.Message = fmt.Sprintf("the field at %s is better explained by a magnetised object (a buried steel or iron item) than by a current: a point dipole %s, %.1f m from the conductor (information criterion lower by %.0f); it is left out of the current and cover profile",
+		at(p, single), set.depthText(o.Depth, o.DepthSigma), o.Distance, o.Evidence)
 	f.Values = []Value{
 		{Name: "east", Value: o.Point[0], Sigma: o.PointSigma[0], Unit: "m"},
 		{Name: "north", Value: o.Point[1], Sigma: o.PointSigma[1], Unit: "m"},
-		{Name: "depth", Value: o.Depth, Sigma: o.DepthSigma, Unit: "m"},
-		{Name: "distance from conductor", Value: o.Distance, Unit: "m"},
-		{Name: "moment", Value: o.Moment, Sigma: o.MomentSigma, Unit: "A m^2"},
-		{Name: "BIC lower by", Value: o.Evidence},
 	}
+	f.Values = append(f.Values, set.depthValues(o.Depth, o.DepthSigma)...)
+	f.Values = append(f.Values,
+		Value{Name: "distance from conductor", Value: o.Distance, Unit: "m"},
+		Value{Name: "moment", Value: o.Moment, Sigma: o.MomentSigma, Unit: "A m^2"},
+		Value{Name: "BIC lower by", Value: o.Evidence},
+	)
 	return f
 }
 

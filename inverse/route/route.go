@@ -72,6 +72,7 @@ func Build(stations []Station, set *Settings) (*Route, error) {
 	r.Findings = append(r.Findings, steps(r.Stations, set, r.ModelScatter, r.ScatterWidening)...)
 	r.Findings = append(r.Findings, cover(r.Stations, set)...)
 	r.Findings = append(r.Findings, quality(r.Stations, set)...)
+	r.Findings = append(r.Findings, weakSources(r.Stations, set)...)
 	sort.SliceStable(r.Findings, func(i, j int) bool {
 		a, b := &r.Findings[i], &r.Findings[j]
 		if a.From != b.From {

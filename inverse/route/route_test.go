@@ -3,6 +3,7 @@ package route
 import (
 	"math"
 	"math/rand/v2"
+	"reflect"
 	"strings"
 	"testing"
 )
@@ -531,12 +532,16 @@ func TestBuildErrors(t *testing.T) {
 func TestInputUntouched(t *testing.T) {
 	st := spur(1, 0, 5)
 	st[2].Dir[0] = -st[2].Dir[0]
+	st[3].Further = []Line{{Point: [3]float64{1, 2, -0.5}, Dir: [3]float64{0, 0.3, 1}, Current: -0.01, CurrentSigma: 0.001, Depth: 0.5, DepthSigma: 0.01}}
 	before := append([]Station(nil), st...)
+	for i := range before {
+		before[i].Further = append([]Line(nil), st[i].Further...)
+	}
 	if _, err := Build(st, nil); err != nil {
 		t.Fatal(err)
 	}
 	for i := range st {
-		if st[i] != before[i] {
+		if !reflect.DeepEqual(st[i], before[i]) {
 			t.Fatalf("station %d modified", i)
 		}
 	}

@@ -1,5 +1,7 @@
 package route
 
+import "math"
+
 // Settings tunes Build. A nil *Settings or a zero field takes the default
 // given beside it.
 type Settings struct {
@@ -21,8 +23,17 @@ type Settings struct {
 	CoverCode string
 	// SensorHeight is the height of the depth reference above ground, m:
 	// cover = depth - SensorHeight. Zero when depths are already below
-	// ground.
+	// ground (say so with DepthsBelowGround) or the ground is not known.
 	SensorHeight float64
+	// DepthsBelowGround is true when the stations' depths are already
+	// below ground (SensorHeight is then zero). Findings give a depth below
+	// ground when the ground is known: SensorHeight > 0, DepthsBelowGround,
+	// or MinCover > 0 (checking cover against a minimum takes the ground
+	// to be SensorHeight below the depth reference). Otherwise they give
+	// it below the sensors and say that the ground level was not given: a
+	// depth below the sensors read as one below ground would send a crew
+	// digging deeper than the object lies.
+	DepthsBelowGround bool
 	// GroundSigma is the one-sigma uncertainty, m, of the ground level
 	// relative to the depth reference: how well the sensors' height above
 	// the ground is known as they were carried, ground undulation between
@@ -83,4 +94,60 @@ func (s *Settings) maxReducedChi2() float64 {
 		return 4
 	}
 	return s.MaxReducedChi2
+}
+
+// groundKnown reports whether depths can be given below ground (see
+// DepthsBelowGround).
+func (s *Settings) groundKnown() bool {
+	return s != nil && (s.SensorHeight > 0 || s.DepthsBelowGround || s.MinCover > 0)
+}
+
+// sensorHeight is SensorHeight, zero for a nil s.
+func (s *Settings) sensorHeight() float64 {
+	if s == nil {
+		return 0
+	}
+	return s.SensorHeight
+}
+
+// groundSigma is GroundSigma, zero for a nil s.
+func (s *Settings) groundSigma() float64 {
+	if s == nil {
+		return 0
+	}
+	return s.GroundSigma
+}
+
+// cover converts a depth below the depth reference and its sigma into the
+// depth below ground (depth - SensorHeight) and its sigma, with
+// GroundSigma added in quadrature.
+func (s *Settings) cover(depth, sigma float64) (c, sc float64) {
+	return depth - s.sensorHeight(), math.Hypot(sigma, s.groundSigma())
+}
+
+// depthText formats a depth below the depth reference, with its sigma, for
+// a message, naming what it is measured from: "0.607 ± 0.020 m below
+// ground" when the ground is known, else "0.907 ± 0.003 m below the
+// sensors (ground level not given)".
+func (s *Settings) depthText(depth, sigma float64) string {
+	if s.groundKnown() {
+		c, sc := s.cover(depth, sigma)
+		return pm(c, sc) + " m below ground"
+	}
+	return pm(depth, sigma) + " m below the sensors (ground level not given)"
+}
+
+// depthValues names a depth below the depth reference for a finding's
+// values: the depth below ground when the ground is known, and the depth
+// below the sensors when that is what was measured.
+func (s *Settings) depthValues(depth, sigma float64) []Value {
+	if !s.groundKnown() {
+		return []Value{{Name: "depth below sensors", Value: depth, Sigma: sigma, Unit: "m"}}
+	}
+	c, sc := s.cover(depth, sigma)
+	out := []Value{{Name: "depth below ground", Value: c, Sigma: sc, Unit: "m"}}
+	if s.SensorHeight > 0 {
+		out = append(out, Value{Name: "depth below sensors", Value: depth, Sigma: sigma, Unit: "m"})
+	}
+	return out
 }

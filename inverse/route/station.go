@@ -51,6 +51,25 @@ type Station struct {
 	// Object describes the magnetised object when Dipole is true (nil
 	// when the caller has no estimate of it).
 	Object *Object
+	// Further lists the other line sources of the group's fit, besides
+	// the conductor the route follows (dipoles are not listed): a second
+	// conductor, or a source the fit added to absorb the main conductor's
+	// departure from a straight line. They enter neither steps nor cover;
+	// one that is weak and steep is reported (see weakSources).
+	Further []Line
+}
+
+// Line is a further line source of a station's fit.
+type Line struct {
+	// Point is a point on the line, m ENU, and Dir its direction (not
+	// necessarily a unit vector).
+	Point, Dir [3]float64
+	// Current and CurrentSigma are its current (RMS for AC; the sign is
+	// ignored) and one-sigma uncertainty, A.
+	Current, CurrentSigma float64
+	// Depth and DepthSigma are its depth below the depth reference at
+	// Point and one-sigma uncertainty, m.
+	Depth, DepthSigma float64
 }
 
 // Object is a magnetised object found beside the conductor: a point dipole

@@ -180,16 +180,16 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64) []F
 			// disabled every raw difference is reported, as asked.)
 			continue
 		}
-		verb, why := "falls", "current leaving the conductor"
+		verb, why := "falls", "current leaving the conductor there"
 		if math.Abs(pl.after) > math.Abs(pl.before) {
-			verb, why = "rises", "current joining the conductor (a bond, a tee or another source)"
+			verb, why = "rises", "current joining the conductor there (a bond, a tee or another source)"
 		}
 		// Two significant digits of the sigma, the values to match.
 		dec := 2
 		if sigma > 0 {
 			dec = max(0, 1-int(math.Floor(math.Log10(sigma))))
 		}
-		msg := fmt.Sprintf("current %s by %.*f ± %.*f A between %s (chainage %.1f m) and %s (%.1f m): %s between them",
+		msg := fmt.Sprintf("current %s by %.*f ± %.*f A between %s (chainage %.1f m) and %s (%.1f m): %s",
 			verb, dec, math.Abs(size), dec, sigma, label(a), a.Chainage, label(b), b.Chainage, why)
 		f := Finding{
 			Kind:     KindCurrentStep,
