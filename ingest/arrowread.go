@@ -61,7 +61,7 @@ func newArrowReaderFor(name, format string, sc *arrow.Schema, cfg *config) (*arr
 	for i, k := range md.Keys() {
 		meta[k] = md.Values()[i]
 	}
-	pl, err := newPlan(name, format, header, types, meta, cfg)
+	pl, err := newPlan(name, format, header, types, meta, 0, cfg)
 	if err != nil {
 		return nil, err
 	}
@@ -92,9 +92,34 @@ func newArrowFileReader(name string, f *os.File, cfg *config) (_ Reader, err err
 	return r, nil
 }
 
+// eofReader counts the bytes read from a file and notes whether a read
+// met the end of the file. The Arrow IPC stream reader stops at an
+// end-of-stream marker (0xFFFFFFFF 0x00000000, or the 4-byte 0x00000000
+// of streams written before format version 0.15) without reading further,
+// so a stream that ends cleanly having met the end of the file has none.
+type eofReader struct {
+	r   io.Reader
+	n   int64
+	eof bool
+}
+
+func (e *eofReader) Read(p []byte) (int, error) {
+	n, err := e.r.Read(p)
+	e.n += int64(n)
+	if err == io.EOF {
+		e.eof = true
+	}
+	return n, err
+}
+
 func newArrowStreamReader(name string, f *os.File, cfg *config) (_ Reader, err error) {
 	defer recoverCorrupt(name, "Arrow IPC stream", &err)
-	sr, err := ipc.NewReader(f, ipc.WithAllocator(cfg.mem))
+	src := &eofReader{r: f}
+	regular := false
+	if st, err := f.Stat(); err == nil && st.Mode().IsRegular() {
+		regular = true
+	}
+	sr, err := ipc.NewReader(src, ipc.WithAllocator(cfg.mem))
 	if err != nil {
 		return nil, fileErr(name, err, "not a readable Arrow IPC stream (truncated or corrupt?)")
 	}
@@ -103,11 +128,25 @@ func newArrowStreamReader(name string, f *os.File, cfg *config) (_ Reader, err e
 		sr.Release()
 		return nil, err
 	}
+	var rows int64
+	batches := 0
 	r.src = func() (arrow.RecordBatch, error) {
 		if sr.Next() {
-			return sr.RecordBatch(), nil
+			rec := sr.RecordBatch()
+			rows += rec.NumRows()
+			batches++
+			return rec, nil
 		}
-		return nil, sr.Err()
+		if err := sr.Err(); err != nil {
+			return nil, err
+		}
+		if regular && src.eof {
+			if !cfg.allowUnterminated {
+				return nil, &Error{File: name, Batch: -1, Msg: fmt.Sprintf("Arrow IPC stream stops at byte %d, after %d rows in %d record batches, without its end-of-stream marker (0xFFFFFFFF 0x00000000): the file was probably cut short (an interrupted copy or a writer that stopped); to read the rows before the cut, allow an unterminated stream (ingest.WithAllowUnterminatedStream; on the command line --allow-unterminated)", src.n, rows, batches)}
+			}
+			r.pl.warn("%s: Arrow IPC stream stops at byte %d, after %d rows in %d record batches, without its end-of-stream marker: read as a possibly incomplete log", name, src.n, rows, batches)
+		}
+		return nil, nil
 	}
 	r.closer = func() { sr.Release(); f.Close() }
 	return r, nil
@@ -171,6 +210,11 @@ func (r *arrowReader) Next() bool {
 	}
 	for {
 		rec, err := r.read()
+		if e, ok := err.(*Error); ok {
+			r.err = e
+			r.Release()
+			return false
+		}
 		if err != nil {
 			r.err = &Error{File: r.name, Batch: r.batch, Row: 0, Msg: "cannot read batch (truncated or corrupt file?)", Err: err}
 			r.Release()
@@ -190,6 +234,15 @@ func (r *arrowReader) Next() bool {
 		if out.NumRows() == 0 {
 			out.Release()
 			continue
+		}
+		if r.pl.orderGroup {
+			if i, prev, g := r.pl.groupBackwards(out); i >= 0 {
+				t := out.Column(0).(*array.Float64).Value(i)
+				out.Release()
+				r.err = rowErr(r.name, r.batch-1, i, r.pl.header[r.pl.src[cTime]], formatSeconds(t), "%s", groupBackwardsMsg(t, prev, g))
+				r.Release()
+				return false
+			}
 		}
 		r.cur = out
 		return true
@@ -281,7 +334,7 @@ func (r *arrowReader) fastPath(rec arrow.RecordBatch) bool {
 }
 
 func (r *arrowReader) checkTime(t []float64, _ []int) error {
-	if !r.cfg.allowBackwards {
+	if r.pl.orderAll {
 		if i := firstBackwards(t, r.last); i >= 0 {
 			prev := r.last
 			if i > 0 {

@@ -10,6 +10,7 @@ import (
 	"sync"
 
 	"github.com/apache/arrow-go/v18/arrow"
+	"github.com/apache/arrow-go/v18/arrow/array"
 )
 
 // maxLineBytes bounds one CSV line; longer lines are an error rather than
@@ -81,6 +82,7 @@ type csvResult struct {
 	firstTime float64 // first non-NaN time, NaN if none
 	firstLine int
 	lastTime  float64
+	lines     []int // line of each row, for TimeOrderedPerGroup
 }
 
 func (r *csvReader) plan() *plan                    { return r.pl }
@@ -162,7 +164,11 @@ func newCSVReader(name string, rd io.Reader, cfg *config) (*csvReader, error) {
 		}
 	}
 	r.ncols = len(header)
-	pl, err := newPlan(name, string(FormatCSV), header, nil, meta, cfg)
+	hl := headerStart
+	if cfg.header != nil {
+		hl = 0 // the names come from WithHeader
+	}
+	pl, err := newPlan(name, string(FormatCSV), header, nil, meta, hl, cfg)
 	if err != nil {
 		if e, ok := err.(*Error); ok && cfg.header == nil {
 			e.Line = headerStart
@@ -911,7 +917,7 @@ func (r *csvReader) parseJob(j csvJob, rb *rawBatch) csvResult {
 	err := r.parseChunk(j.data, j.line, rb, j.plain)
 	if err != nil || rb.n == 0 {
 		res := csvResult{err: err, firstTime: math.NaN(), lastTime: math.NaN()}
-		if err != nil && !r.cfg.allowBackwards {
+		if err != nil && r.pl.orderAll {
 			// A step back in time on a row before the bad one comes
 			// first in the file, whatever the chunking: report that.
 			t := rb.f[cTime]
@@ -924,12 +930,15 @@ func (r *csvReader) parseJob(j csvJob, rb *rawBatch) csvResult {
 	}
 	pl.transform(rb)
 	t := rb.f[cTime]
-	if !r.cfg.allowBackwards {
+	if r.pl.orderAll {
 		if i := firstBackwards(t, math.NaN()); i > 0 {
 			return csvResult{err: backwardsErr(r.name, rb.line[i], pl.header[pl.src[cTime]], t[i], lastTime(t[:i], math.NaN()))}
 		}
 	}
 	res := csvResult{rec: pl.record(r.cfg.mem, rb), lastTime: lastTime(t, math.NaN())}
+	if pl.orderGroup {
+		res.lines = append([]int(nil), rb.line[:rb.n]...)
+	}
 	res.firstTime, res.firstLine = firstTime(t, rb.line)
 	return res
 }
@@ -965,7 +974,7 @@ func (r *csvReader) Next() bool {
 		res := <-ch
 		if res.err != nil {
 			r.err = res.err
-			if !r.cfg.allowBackwards && res.firstLine > 0 && res.firstTime < r.last {
+			if r.pl.orderAll && res.firstLine > 0 && res.firstTime < r.last {
 				// Rows before the bad one step back from the last chunk.
 				r.err = backwardsErr(r.name, res.firstLine, r.pl.header[r.pl.src[cTime]], res.firstTime, r.last)
 			}
@@ -975,11 +984,20 @@ func (r *csvReader) Next() bool {
 		if res.rec == nil {
 			continue
 		}
-		if !r.cfg.allowBackwards && res.firstTime < r.last {
+		if r.pl.orderAll && res.firstTime < r.last {
 			res.rec.Release()
 			r.err = backwardsErr(r.name, res.firstLine, r.pl.header[r.pl.src[cTime]], res.firstTime, r.last)
 			r.stop()
 			return false
+		}
+		if r.pl.orderGroup {
+			if i, prev, g := r.pl.groupBackwards(res.rec); i >= 0 {
+				t := res.rec.Column(0).(*array.Float64).Value(i)
+				res.rec.Release()
+				r.err = lineErr(r.name, res.lines[i], r.pl.header[r.pl.src[cTime]], formatSeconds(t), "%s", groupBackwardsMsg(t, prev, g))
+				r.stop()
+				return false
+			}
 		}
 		if res.lastTime == res.lastTime {
 			r.last = res.lastTime

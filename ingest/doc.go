@@ -76,6 +76,25 @@
 //
 //	ingest: log.csv:58: column bz: "1oo.0" is not a number
 //
+// Two columns (or schema fields) of one name, where a mapping would read
+// one of them, are an error naming the header line and both column
+// numbers. Time going backwards is an error unless WithTimeOrder relaxes
+// it (to within each group, or not at all). An Arrow IPC stream file that
+// ends after a whole message but without its end-of-stream marker is an
+// error naming the byte offset where it stops, unless
+// WithAllowUnterminatedStream accepts it; the writers of this package (and
+// the broker's encoder) always end their streams with the marker. In
+// IAGA-2002 files a day of year that disagrees with the date, or a value
+// after the four elements, is an error.
+//
+// # Warnings
+//
+// Problems that do not stop the reading (same-named columns of which none
+// is read, two names that could both be one canonical column, IAGA-2002
+// variation data in H D Z or H E Z without DECBAS, an unterminated stream
+// accepted on request) are warnings: Warnings(r) for a Reader,
+// Samples.Warnings after Collect or ReadSamples, and Inspection.Warnings.
+//
 // Output files are written through WriteFileAtomic: a temporary file in the
 // same directory renamed into place, so a failed write leaves nothing behind.
 package ingest

@@ -46,6 +46,7 @@ type iagaReader struct {
 	pl       *plan
 	cfg      *config
 	elements [4]byte
+	nul      [4]bool // element not reported ("NUL" in the column line): read as NaN
 	line     int
 	cur      arrow.RecordBatch
 	err      error
@@ -148,6 +149,7 @@ func newIAGAReader(name string, rd io.Reader, cfg *config) (*iagaReader, error) 
 		if len(el[i]) == 1 {
 			r.elements[i] = el[i][0]
 		}
+		r.nul[i] = el[i] == "NUL"
 	}
 	meta[MetaPrefix+"elements"] = strings.Join(el[:], "")
 	// A NUL third element (no vertical data) is read as all missing.
@@ -175,6 +177,7 @@ func newIAGAReader(name string, rd io.Reader, cfg *config) (*iagaReader, error) 
 	case variation && decbasLine == 0:
 		meta[MetaPrefix+"horizontal_frame"] = IAGABaselineNoDECBAS
 	}
+	noDECBAS := variation && decbasLine == 0 && !cfg.keepBaseline
 	if variation && decbasLine > 0 && !cfg.keepBaseline {
 		v, err := strconv.ParseFloat(decbasText, 64)
 		if err != nil || !(v >= 0 && v <= 216000) {
@@ -191,7 +194,7 @@ func newIAGAReader(name string, rd io.Reader, cfg *config) (*iagaReader, error) 
 	if hasF && r.elements[3] == 'F' {
 		c.mapping[cF] = header[4]
 	}
-	pl, err := newPlan(name, string(FormatIAGA), header, nil, meta, &c)
+	pl, err := newPlan(name, string(FormatIAGA), header, nil, meta, r.line, &c)
 	if err != nil {
 		return nil, err
 	}
@@ -211,6 +214,21 @@ func newIAGAReader(name string, rd io.Reader, cfg *config) (*iagaReader, error) 
 		if r.baseline != 0 {
 			pl.desc[cBx], pl.desc[cBy] = h1+" sin DECBAS + "+h2+" cos DECBAS", h1+" cos DECBAS - "+h2+" sin DECBAS"
 		}
+	}
+	for i, h := range []string{h1, h2, h3} {
+		if !r.nul[i] {
+			continue
+		}
+		// The canonical column fed by element i alone (the vertical one:
+		// a NUL horizontal element leaves no supported element set).
+		c := cBz
+		if set == "UVW" {
+			c = cBx + i
+		}
+		pl.desc[c] = h + ": not reported"
+	}
+	if noDECBAS {
+		pl.warn("%s: IAGA-2002 variation data in %s without a DECBAS comment in the header: east and north are those of the observatory's baseline frame (H along the baseline declination), not geographic; give the header its \"# DECBAS\" line to turn them", name, strings.Join(strings.Split(set, ""), " "))
 	}
 	r.bsin, r.bcos = math.Sincos(r.baseline)
 	return r, nil
@@ -292,8 +310,12 @@ func (r *iagaReader) parseRow(ln []byte, rb *rawBatch, hasF bool) error {
 		f[k], rest = rest[:i], rest[i:]
 		k++
 	}
-	if k < 7 || len(bytes.TrimSpace(rest)) > 0 {
+	if k < 7 {
 		return lineErr(r.name, r.line, "", string(ln), "IAGA-2002 data line needs date, time, day of year and four values: %s", quoteText(string(ln)))
+	}
+	if k > 7 {
+		at := len(ln) - len(rest) - len(f[7]) + 1
+		return lineErr(r.name, r.line, "", string(f[7]), "IAGA-2002 data line has a value after the four elements: %s at character %d (the format has date, time, day of year and four values)", quoteText(string(f[7])), at)
 	}
 	ts := string(f[0]) + "T" + string(f[1]) + "Z"
 	tm, err := time.Parse("2006-01-02T15:04:05.999999999Z", ts)
@@ -301,18 +323,21 @@ func (r *iagaReader) parseRow(ln []byte, rb *rawBatch, hasF bool) error {
 		return lineErr(r.name, r.line, "DATE TIME", string(f[0])+" "+string(f[1]), "%s is not an IAGA-2002 date and time", quoteText(string(f[0])+" "+string(f[1])))
 	}
 	t := unixSeconds(tm)
+	if doy, err := strconv.Atoi(string(f[2])); err != nil || doy != tm.YearDay() {
+		return lineErr(r.name, r.line, "DOY", string(f[2]), "day of year %s does not match the date %s (day %03d)", quoteText(string(f[2])), f[0], tm.YearDay())
+	}
 	var v [4]float64
 	for i := 0; i < 4; i++ {
 		x, err := strconv.ParseFloat(string(f[3+i]), 64)
 		if err != nil || math.IsInf(x, 0) || x != x {
 			return lineErr(r.name, r.line, r.pl.header[1+i], string(f[3+i]), "%s is not a number", quoteText(string(f[3+i])))
 		}
-		if x >= iagaNotRecorded {
+		if x >= iagaNotRecorded || r.nul[i] {
 			x = math.NaN()
 		}
 		v[i] = x
 	}
-	if !r.cfg.allowBackwards && t < r.last {
+	if r.pl.orderAll && t < r.last {
 		return backwardsErr(r.name, r.line, "DATE TIME", t, r.last)
 	}
 	r.last = t

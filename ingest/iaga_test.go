@@ -190,7 +190,7 @@ func TestIAGAErrors(t *testing.T) {
 		{"no column line", head, "without a DATE TIME DOY column line"},
 		{"bad value", head + cols + strings.Replace(row, "-450.00", "-45o.00", 1), `:4: column HFNY: "-45o.00" is not a number`},
 		{"short row", head + cols + row[:40] + "\n", ":4: IAGA-2002 data line needs"},
-		{"backwards", head + cols + row + strings.Replace(row, "00:00:00", "00:00:00", 1) + strings.Replace(row, "2024-03-01", "2024-02-29", 1), ":6: column DATE TIME: time goes backwards"},
+		{"backwards", head + cols + row + strings.Replace(row, "00:00:00", "00:00:00", 1) + strings.Replace(row, "2024-03-01 00:00:00.000 061", "2024-02-29 00:00:00.000 060", 1), ":6: column DATE TIME: time goes backwards"},
 		{"bad date", head + cols + strings.Replace(row, "2024-03-01", "2024-13-01", 1), `:4: column DATE TIME: "2024-13-01 00:00:00.000" is not an IAGA-2002 date and time`},
 		{"unknown elements", head + strings.Replace(cols, "HFNX      HFNY      HFNZ", "HFND      HFNI      HFNF", 1) + row, `element set "DIF" is not supported`},
 	}

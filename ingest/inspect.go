@@ -82,9 +82,10 @@ func (h *gapHeap) Pop() any          { o := *h; x := o[len(o)-1]; *h = o[:len(o)
 const earthMin, earthMax = 1.5e4, 8e4
 
 // Inspect reads the whole log once, in bounded memory, and summarises it.
-// Missing values and time going backwards are counted, not errors.
+// Missing values and time going backwards are counted, not errors, and an
+// Arrow IPC stream without its end-of-stream marker is read with a warning.
 func Inspect(path string, opts ...Option) (*Inspection, error) {
-	opts = append(append([]Option(nil), opts...), WithAllowMissing(true), WithAllowBackwards(true))
+	opts = append(append([]Option(nil), opts...), WithAllowMissing(true), WithAllowBackwards(true), WithAllowUnterminatedStream(true))
 	r, err := Open(path, opts...)
 	if err != nil {
 		return nil, err
@@ -213,6 +214,7 @@ func Inspect(path string, opts ...Option) (*Inspection, error) {
 			ts.GapsAtLeast = ts.Gaps == keepGaps
 		}
 	}
+	in.Warnings = append(in.Warnings, pl.warnings...)
 	in.Warnings = append(in.Warnings, guessUnits(pl, in, mags)...)
 	return in, nil
 }

@@ -59,28 +59,30 @@ const (
 )
 
 type config struct {
-	mapping        map[int]string // canonical index -> source column name
-	mappingText    []string       // as given, for messages
-	units          map[int]string
-	delim          byte // 0: detect
-	whitespace     bool // fields separated by runs of blanks
-	comment        string
-	header         []string // names when the file has no header line
-	frame          Frame
-	frameSet       bool
-	origin         Geodetic
-	originMode     originMode
-	allowMissing   bool
-	allowBackwards bool
-	keepBaseline   bool // IAGA-2002: leave variation data in the baseline frame (WithIAGABaselineFrame)
-	decimalComma   int  // CSV: 0 detect, 1 decimal commas, -1 decimal points (WithDecimalComma)
-	batchRows      int
-	chunkBytes     int
-	workers        int
-	mem            memory.Allocator
-	progress       func(rows int64)
-	slowOnly       bool  // tests: CSV general path only
-	err            error // first bad option, reported by Open
+	mapping           map[int]string // canonical index -> source column name
+	mappingText       []string       // as given, for messages
+	units             map[int]string
+	delim             byte // 0: detect
+	whitespace        bool // fields separated by runs of blanks
+	comment           string
+	header            []string // names when the file has no header line
+	frame             Frame
+	frameSet          bool
+	origin            Geodetic
+	originMode        originMode
+	allowMissing      bool
+	allowBackwards    bool
+	groupOrder        bool // time must not go backwards within each group (WithTimeOrder)
+	allowUnterminated bool // Arrow IPC stream files may lack the end-of-stream marker
+	keepBaseline      bool // IAGA-2002: leave variation data in the baseline frame (WithIAGABaselineFrame)
+	decimalComma      int  // CSV: 0 detect, 1 decimal commas, -1 decimal points (WithDecimalComma)
+	batchRows         int
+	chunkBytes        int
+	workers           int
+	mem               memory.Allocator
+	progress          func(rows int64)
+	slowOnly          bool  // tests: CSV general path only
+	err               error // first bad option, reported by Open
 }
 
 func newConfig(opts []Option) *config {
@@ -208,8 +210,71 @@ func WithOriginMean() Option { return func(c *config) { c.originMode = originMea
 // columns as missing values (NaN). By default they are errors.
 func WithAllowMissing(ok bool) Option { return func(c *config) { c.allowMissing = ok } }
 
-// WithAllowBackwards accepts time going backwards. By default it is an error.
-func WithAllowBackwards(ok bool) Option { return func(c *config) { c.allowBackwards = ok } }
+// WithAllowBackwards(true) accepts time going backwards anywhere, as
+// WithTimeOrder(TimeAnyOrder) does; WithAllowBackwards(false) restores the
+// default, TimeOrdered.
+func WithAllowBackwards(ok bool) Option {
+	return func(c *config) { c.allowBackwards, c.groupOrder = ok, false }
+}
+
+// TimeOrder says where time may not go backwards (see WithTimeOrder).
+type TimeOrder int
+
+const (
+	// TimeOrdered: time never goes backwards from one row to the next
+	// (equal times are allowed). The default.
+	TimeOrdered TimeOrder = iota
+	// TimeOrderedPerGroup: time never goes backwards from one row of a
+	// group (a value of the group column: a sensor, a traverse) to the next
+	// row of the same group, while rows of different groups may come in any
+	// order, as in a log sorted by sensor or traverses logged out of
+	// order. Without a group column it is TimeOrdered.
+	TimeOrderedPerGroup
+	// TimeAnyOrder: no check.
+	TimeAnyOrder
+)
+
+// ParseTimeOrder parses "ordered", "per-group" (or "group") and "any".
+func ParseTimeOrder(s string) (TimeOrder, error) {
+	switch strings.ToLower(strings.TrimSpace(s)) {
+	case "ordered", "":
+		return TimeOrdered, nil
+	case "per-group", "group":
+		return TimeOrderedPerGroup, nil
+	case "any":
+		return TimeAnyOrder, nil
+	}
+	return 0, fmt.Errorf("ingest: unknown time order %q (want ordered, per-group or any)", s)
+}
+
+// WithTimeOrder says where time may not go backwards; a step back where it
+// may not is an error naming the line (or batch and row). The default is
+// TimeOrdered.
+func WithTimeOrder(o TimeOrder) Option {
+	return func(c *config) {
+		switch o {
+		case TimeOrdered:
+			c.allowBackwards, c.groupOrder = false, false
+		case TimeOrderedPerGroup:
+			c.allowBackwards, c.groupOrder = false, true
+		case TimeAnyOrder:
+			c.allowBackwards, c.groupOrder = true, false
+		default:
+			c.fail("time order %d: want TimeOrdered, TimeOrderedPerGroup or TimeAnyOrder", int(o))
+		}
+	}
+}
+
+// WithAllowUnterminatedStream(true) reads an Arrow IPC stream file that ends
+// without its end-of-stream marker (0xFFFFFFFF 0x00000000) after a whole
+// message, as a writer stopped mid-run leaves it, and records a warning (see
+// Warnings). By default such a file is an error naming the byte offset where
+// it stops, since it usually means a copy was cut short. A stream cut inside
+// a message is an error either way. Streams that are not regular files
+// (pipes) may end without the marker, as the format allows.
+func WithAllowUnterminatedStream(ok bool) Option {
+	return func(c *config) { c.allowUnterminated = ok }
+}
 
 // WithIAGABaselineFrame(true) leaves IAGA-2002 variation data in H D Z or
 // H E Z in the observatory's baseline frame. By default, when the header gives

@@ -30,6 +30,33 @@ type plan struct {
 	origin   *Geodetic
 	enu      enuFrame
 	cfg      *config
+	// warnings are problems that do not stop the reading (see Warnings).
+	warnings []string
+	// orderAll: time may not go backwards from row to row; orderGroup: it
+	// may not within a group (WithTimeOrder), checked by groupOrder.
+	orderAll, orderGroup bool
+	groupLast            map[string]*float64 // last time of each group
+}
+
+// warn records a warning (see Warnings).
+func (p *plan) warn(format string, a ...any) {
+	p.warnings = append(p.warnings, fmt.Sprintf(format, a...))
+}
+
+// Warnings returns the warnings a reader of this package has raised so
+// far: problems with the input that do not stop the reading, such as two
+// columns with the same name of which neither is read, an IAGA-2002
+// variation file in H E Z or H D Z whose header gives no DECBAS, or an
+// Arrow IPC stream without its end-of-stream marker read with
+// WithAllowUnterminatedStream. Those found in the header are there after
+// Open; those found in the data are complete once Next has returned false.
+// Each reads "FILE: message" (or "FILE:LINE: message"). It returns nil for
+// readers of other packages.
+func Warnings(r Reader) []string {
+	if p := planOf(r); p != nil && len(p.warnings) > 0 {
+		return append([]string(nil), p.warnings...)
+	}
+	return nil
 }
 
 // ColumnMapping describes where one canonical column came from.
@@ -70,7 +97,9 @@ func (p *plan) mappings() []ColumnMapping {
 }
 
 // newPlan resolves the input's column names against the options.
-func newPlan(file, format string, header []string, types []arrow.DataType, meta map[string]string, cfg *config) (*plan, error) {
+// headerLine is the line of a text file's header (0 when there is none),
+// for messages.
+func newPlan(file, format string, header []string, types []arrow.DataType, meta map[string]string, headerLine int, cfg *config) (*plan, error) {
 	p := &plan{file: file, format: format, header: header, cfg: cfg, meta: map[string]string{}}
 	for i := range p.src {
 		p.src[i] = -1
@@ -129,18 +158,7 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 		if taken[i] {
 			continue
 		}
-		base, u := splitUnit(h)
-		c, ok := lookupName(h)
-		if !ok && u != "" {
-			c, ok = lookupName(base)
-			if ok {
-				if _, err := unitScale(kindOf(c), u); err != nil {
-					ok = false // "line_id" is not "line" in unit "id"
-				}
-			}
-		} else {
-			u = ""
-		}
+		c, u, ok := autoName(h)
 		if !ok || p.src[c] >= 0 {
 			continue
 		}
@@ -156,6 +174,12 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 			if _, err := unitScale(kindOf(c), u); err == nil {
 				unitFromName[c] = u
 			}
+		}
+	}
+
+	if format != string(FormatIAGA) { // IAGA-2002 columns are taken by position
+		if err := p.checkDuplicates(headerLine); err != nil {
+			return nil, err
 		}
 	}
 
@@ -232,8 +256,155 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 	if p.origin != nil {
 		p.enu = p.origin.frame()
 	}
+	p.orderGroup = !cfg.allowBackwards && cfg.groupOrder && p.src[cGroup] >= 0
+	p.orderAll = !cfg.allowBackwards && !p.orderGroup
 	p.buildSchema()
 	return p, nil
+}
+
+// groupBackwards checks the time order within groups of an output batch
+// (TimeOrderedPerGroup). It returns the first row whose time is earlier
+// than the time of the previous row of its group, that time and the group,
+// or row -1. NaN times (allowed missing values) are skipped.
+func (p *plan) groupBackwards(rec arrow.RecordBatch) (row int, prev float64, group string) {
+	if p.groupLast == nil {
+		p.groupLast = map[string]*float64{}
+	}
+	t := rec.Column(0).(*array.Float64).Float64Values()
+	var g *array.String
+	for i, c := range p.out {
+		if c == cGroup {
+			g, _ = rec.Column(i).(*array.String)
+		}
+	}
+	if g == nil {
+		return -1, 0, ""
+	}
+	// Group names alias the batch's memory: a name is copied only when it
+	// enters the map, and entries are updated through their pointers.
+	var cur string
+	var last *float64
+	for i, v := range t {
+		if v != v {
+			continue
+		}
+		if k := g.Value(i); last == nil || k != cur {
+			cur = k
+			if last = p.groupLast[k]; last == nil {
+				last = new(float64)
+				*last = math.Inf(-1)
+				p.groupLast[strings.Clone(k)] = last
+			}
+		}
+		if v < *last {
+			return i, *last, strings.Clone(cur)
+		}
+		*last = v
+	}
+	return -1, 0, ""
+}
+
+func groupBackwardsMsg(t, prev float64, group string) string {
+	return fmt.Sprintf("time goes backwards within group %q: %s after %s", group, formatSeconds(t), formatSeconds(prev))
+}
+
+// autoName resolves a header name to a canonical column without a mapping:
+// the name itself or an alias, either possibly with a unit suffix, which
+// is returned.
+func autoName(h string) (c int, unit string, ok bool) {
+	base, u := splitUnit(h)
+	c, ok = lookupName(h)
+	if !ok && u != "" {
+		c, ok = lookupName(base)
+		if ok {
+			if _, err := unitScale(kindOf(c), u); err != nil {
+				ok = false // "line_id" is not "line" in unit "id"
+			}
+		}
+		return c, u, ok
+	}
+	return c, "", ok
+}
+
+// checkDuplicates refuses a column that the plan reads when another column
+// has the same name (compared as the mapping compares names: exactly, else
+// ignoring case and surrounding blanks), since nothing but the order then
+// decides which one is read and a mapping by name cannot choose the other.
+// Same-named columns of which the plan reads neither, and differently named
+// columns that both resolve to one canonical column without a mapping
+// ("bx" and "Bx_uT"), are warnings.
+func (p *plan) checkDuplicates(headerLine int) error {
+	what, one := "columns", "column"
+	if p.format != string(FormatCSV) {
+		what, one = "schema fields", "field"
+	}
+	where := ""
+	if headerLine > 0 {
+		where = fmt.Sprintf(":%d", headerLine)
+	}
+	norm := func(h string) string { return strings.ToLower(strings.TrimSpace(h)) }
+	for c := 0; c < nCanon; c++ {
+		i := p.src[c]
+		if i < 0 {
+			continue
+		}
+		name := p.header[i]
+		exact := !p.auto[c] && p.cfg.mapping[c] == name
+		for j, h := range p.header {
+			if j == i {
+				continue
+			}
+			same := norm(h) == norm(name)
+			if exact {
+				same = h == name
+			}
+			if !same {
+				continue
+			}
+			a, b := min(i, j), max(i, j)
+			named := fmt.Sprintf("named %q", name)
+			if h != name {
+				named = fmt.Sprintf("named %q and %q", p.header[a], p.header[b])
+			}
+			return &Error{File: p.file, Line: headerLine, Batch: -1,
+				Msg: fmt.Sprintf("%s %d and %d are both %s; %s would be read from %s %d and %s %d ignored, and no mapping by name can choose between them: rename one of them",
+					what, a+1, b+1, named, canonNames[c], one, i+1, one, j+1)}
+		}
+		if p.auto[c] {
+			for j, h := range p.header {
+				if j == i || norm(h) == norm(name) {
+					continue
+				}
+				if c2, _, ok := autoName(h); ok && c2 == c && !p.uses(j) {
+					p.warn("%s%s: %s %d (%q) and %d (%q) could both be %s; %d is read (choose with a mapping such as %s=NAME)",
+						p.file, where, what, i+1, name, j+1, h, canonNames[c], i+1, canonNames[c])
+				}
+			}
+		}
+	}
+	first := map[string]int{}
+	for j, h := range p.header {
+		k := norm(h)
+		i, seen := first[k]
+		if !seen {
+			first[k] = j
+			continue
+		}
+		if !p.uses(i) && !p.uses(j) {
+			p.warn("%s%s: %s %d and %d are both named %q (neither is read)", p.file, where, what, i+1, j+1, h)
+		}
+	}
+	return nil
+}
+
+// uses reports whether source column i feeds a canonical column.
+func (p *plan) uses(i int) bool {
+	for _, j := range p.src {
+		if j == i {
+			return true
+		}
+	}
+	return false
 }
 
 func lookupName(h string) (int, bool) {

@@ -29,6 +29,9 @@ type Samples struct {
 	Frame      Frame             // FrameENU (default) or FrameSensor
 	Origin     *Geodetic         // non-nil when positions were converted from WGS84 lat/lon/height
 	Meta       map[string]string // e.g. IAGA-2002 header fields ("station_name", "geodetic_latitude", ...)
+	// Warnings are the reader's warnings (see Warnings): problems with the
+	// input that did not stop the reading. Callers should show them.
+	Warnings []string
 }
 
 // Len returns the number of rows.
@@ -124,6 +127,7 @@ func Collect(r Reader) (*Samples, error) {
 	if err := r.Err(); err != nil {
 		return nil, err
 	}
+	s.Warnings = Warnings(r)
 	if s.Len() == 0 {
 		return nil, fileErr(s.Source, nil, "no data rows")
 	}
