@@ -51,10 +51,11 @@ type locateOptions struct {
 	// read holds the input flags shared by every command that reads logs.
 	read readFlags
 
-	// set by check
 	// readOpts are the ingest options of the input flags (run sets them).
 	readOpts []ingest.Option
-	nCount   int // 0 = auto
+
+	// set by check
+	nCount int // 0 = auto
 	// extra names allowed in an existing output directory (the demo's log)
 	keepNames []string
 	// given lists the flags the user set, for the document's settings
@@ -713,7 +714,11 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 	}
 	fmt.Fprintf(w, "depths are %s; currents %s, one-sigma uncertainties\n", ref, map[bool]string{true: "RMS with phase", false: "DC"}[doc.Signal.Mode == report.SignalAC])
 	tracks := len(doc.Conductors) > 0
-	fmt.Fprintf(w, "%-8s %10s %18s %16s %9s", "group", "chainage", "current (A)", "depth (m)", "rms (nT)")
+	cw := 18 // current column
+	if doc.Signal.Mode == report.SignalAC {
+		cw = 30 // RMS and phase, each with its sigma
+	}
+	fmt.Fprintf(w, "%-8s %10s %*s %16s %9s", "group", "chainage", cw, "current (A)", "depth (m)", "rms (nT)")
 	if tracks {
 		// Which conductor along the route each source belongs to: 1 is the
 		// route's own, 2, 3, ... the further ones followed (doc.Conductors).
@@ -730,7 +735,7 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 			ch = fmt.Sprintf("%.1f m", *g.Chainage)
 		}
 		if len(g.Sources) == 0 {
-			fmt.Fprintf(w, "%-8s %10s %18s %16s %9.3g  %s\n", key, ch, "-", "-", g.RMS, g.Problem)
+			fmt.Fprintf(w, "%-8s %10s %*s %16s %9.3g  %s\n", key, ch, cw, "-", "-", g.RMS, g.Problem)
 			continue
 		}
 		for i, s := range g.Sources {
@@ -742,8 +747,10 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 			switch {
 			case s.Kind == report.KindDipole:
 				cur = "object"
+			case s.Phase != nil && s.PhaseSigma != nil:
+				cur = fmt.Sprintf("%.3g ± %.2g ∠%.0f° ± %.2g°", s.Current, s.CurrentSigma, *s.Phase, *s.PhaseSigma)
 			case s.Phase != nil:
-				cur = fmt.Sprintf("%.3g∠%.0f° ± %.2g", s.Current, *s.Phase, s.CurrentSigma)
+				cur = fmt.Sprintf("%.3g ± %.2g ∠%.0f°", s.Current, s.CurrentSigma, *s.Phase)
 			}
 			note := ""
 			if i == 0 && g.Problem != "" {
@@ -759,7 +766,7 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 				}
 				note = fmt.Sprintf(" %9s", c) + note
 			}
-			fmt.Fprintf(w, "%-8s %10s %18s %16s %9.3g%s\n", k, ch, cur, fmt.Sprintf("%.2f ± %.2g", s.Depth, s.DepthSigma), g.RMS, note)
+			fmt.Fprintf(w, "%-8s %10s %*s %16s %9.3g%s\n", k, ch, cw, cur, fmt.Sprintf("%.2f ± %.2g", s.Depth, s.DepthSigma), g.RMS, note)
 		}
 	}
 	if len(doc.Findings) == 0 {
@@ -783,7 +790,10 @@ func checkOutDir(dir string, keep []string) error {
 	if errors.Is(err, os.ErrNotExist) {
 		// Only the directory itself is made: a missing parent is most
 		// likely a typo, which should not grow a new tree.
-		return checkParentDir(dir)
+		if err := checkParentDir(dir); err != nil {
+			return fmt.Errorf("-o %s: %w", dir, err)
+		}
+		return nil
 	}
 	if err != nil {
 		return fmt.Errorf("-o %s: %w", dir, err)
