@@ -72,7 +72,16 @@ func (c *command) printHelp(w io.Writer, fs *pflag.FlagSet) {
 	if fs.HasFlags() {
 		fmt.Fprintf(w, "\nFlags:\n%s", fs.FlagUsages())
 	}
+	if c.name != "serve" && c.name != "version" {
+		fmt.Fprintf(w, "\n%s\n", interruptHelp)
+	}
 }
+
+// interruptHelp says what Ctrl-C does (serve documents its own draining).
+const interruptHelp = `Ctrl-C (SIGINT) or SIGTERM stops the command at the next stage (between
+batches while reading); it prints "interrupted", writes no output (files
+and directories appear whole or not at all) and exits with status 130
+(SIGINT) or 143 (SIGTERM).`
 
 func sortedCommands() []*command {
 	list := make([]*command, 0, len(commands))
@@ -90,7 +99,7 @@ func printCommands(w io.Writer) {
 		fmt.Fprintf(w, "  %-10s %s\n", c.name, c.summary)
 	}
 	fmt.Fprintf(w, "\nRun \"undercurrent help COMMAND\" or \"undercurrent COMMAND --help\" for details.\n")
-	fmt.Fprintf(w, "Ctrl-C (SIGINT) or SIGTERM stops a command at the next stage, writing no output: exit status 130 (143 for SIGTERM).\n")
+	fmt.Fprintf(w, "Ctrl-C (SIGINT) or SIGTERM stops a command at the next stage and writes no output: exit status 130 (143 for SIGTERM).\n")
 	fmt.Fprintf(w, "Start with \"undercurrent demo\" to run the whole job on a bundled example.\n")
 }
 

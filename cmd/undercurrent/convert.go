@@ -87,7 +87,7 @@ Examples:
 			}
 			progress, done := rowProgress(stderr, "converting")
 			opts = append(opts, ingest.WithAllowMissing(!strict), progress)
-			r, err := ingest.Open(in, opts...)
+			r, err := await(ctx, func() (ingest.Reader, error) { return ingest.Open(in, opts...) })
 			if err != nil {
 				done()
 				return err

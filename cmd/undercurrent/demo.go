@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"os"
 	"path/filepath"
 	"strconv"
 	"strings"
@@ -36,7 +37,8 @@ for a while and a buried steel object lies near one traverse.
 It then runs locate on the log as a surveyor would (demodulating the 50 Hz
 field, fitting each traverse, building the route) and writes into DIR the log
 (` + demoLog + `), results.json, results.csv, route.geojson and report.html,
-the crew report to open in a browser. DIR is written whole or not at all.
+the crew report to open in a browser. DIR is written whole or not at all;
+its parent directory must exist (the default's, out, is made).
 
 Examples:
   undercurrent demo
@@ -50,6 +52,12 @@ Examples:
 			}
 			if out == "" {
 				return usageErrorf("-o needs a directory")
+			}
+			if !fs.Changed("output") {
+				// The default out/demo is not a typo: make its parent.
+				if err := os.MkdirAll(filepath.Dir(out), 0o755); err != nil {
+					return err
+				}
 			}
 			return runDemo(ctx, out, stdout, progressOn(stderr))
 		},

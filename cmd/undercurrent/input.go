@@ -177,7 +177,8 @@ func readSamples(ctx context.Context, path string, opts ...ingest.Option) (*inge
 	if err := ctx.Err(); err != nil {
 		return nil, err
 	}
-	r, err := ingest.Open(path, opts...)
+	// Open reads the whole log first for --origin mean.
+	r, err := await(ctx, func() (ingest.Reader, error) { return ingest.Open(path, opts...) })
 	if err != nil {
 		return nil, err
 	}

@@ -197,10 +197,21 @@ path is so long against the conductor's distance that the model may be off
 by more than 0.1% near the peak, the run warns and suggests shorter windows
 or a slower walk.
 
+The input flags (--column, --unit, --delimiter, --header, --comment,
+--frame, --origin, --decimal-comma, --drop-missing), the same for every
+command that reads logs, apply to the survey logs; the base log (--base)
+is read as it is, with missing values allowed (--iaga-baseline-frame
+applies to it). Each survey log's median |B| is checked against the
+Earth's field (about 20000-70000 nT, in every raw log): far from it, the
+run warns that the field's unit is probably wrong (fine for a log with the
+Earth's field removed); impossibly far (below 1 pT or above 0.1 T, as an
+Earth field in tesla read as nT) it refuses, unless --unit gives the
+field's unit.
+
 With -o DIR it writes results.json (the result document), results.csv,
 route.geojson and report.html (the crew report) into DIR; the directory is
-written whole or not at all. --json prints the result document on stdout.
-Without either it prints a summary.
+written whole or not at all, and its parent must exist. --json prints the
+result document on stdout. Without either it prints a summary.
 
 The estimates are not a verified locate: confirm before excavation by
 approved methods, treat every conductor as live; local codes and licensed

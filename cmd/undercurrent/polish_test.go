@@ -110,6 +110,7 @@ func TestOutputExtensionsAndDirectories(t *testing.T) {
 		{"simulate", scen, "-o", filepath.Join(dir, "y.csv"), "--truth", filepath.Join(missing, "t.csv")},
 		{"locate", "-o", filepath.Join(missing, "res"), log},
 		{"demo", "-o", filepath.Join(missing, "demo")},
+		{"calibrate", "--zero", log, "-o", filepath.Join(missing, "cal.json")},
 	} {
 		if code, _, errOut := cli(t, args...); code != 1 || !strings.Contains(errOut, "output directory "+missing+" does not exist") {
 			t.Errorf("%s: exit %d, stderr %q; want the missing directory named", args[0], code, errOut)
@@ -124,6 +125,17 @@ func TestOutputExtensionsAndDirectories(t *testing.T) {
 		t.Fatalf("locate -o: exit %d: %s", code, errOut)
 	}
 	if _, err := os.Stat(filepath.Join(res, "results.json")); err != nil {
+		t.Error(err)
+	}
+	// demo's default, out/demo, is no typo: its parent is made.
+	if testing.Short() {
+		return
+	}
+	t.Chdir(t.TempDir())
+	if code, _, errOut := cli(t, "demo"); code != 0 {
+		t.Fatalf("demo: exit %d: %s", code, errOut)
+	}
+	if _, err := os.Stat(filepath.Join("out", "demo", "report.html")); err != nil {
 		t.Error(err)
 	}
 }
