@@ -18,6 +18,7 @@ func init() {
 		spin, zero, flip0, flip180, flipAxis, out, show string
 		reference                                       float64
 		refine, asJSON                                  bool
+		rf                                              readFlags
 	)
 	register(&command{
 		name:    "calibrate",
@@ -41,12 +42,17 @@ Methods (give exactly one):
   --zero FILE      readings inside a magnetic shield: offsets of all axes.
   --show CAL.json  print a saved calibration file.
 
-Logs are any format ingest reads (CSV, Arrow, Parquet); only bx, by, bz are
-used, in the sensor's own axes.
+Logs are any format undercurrent reads (CSV, Arrow, Parquet), with the same
+input flags as the other commands (--column, --unit, --delimiter, ...); only
+bx, by, bz are used, in the sensor's own axes. A spin or flip log whose
+median |B| is far from the Earth's field gets a warning (a unit is probably
+wrong), and one impossibly far (below 1 pT or above 0.1 T) is refused
+unless --unit gives the field's unit.
 
 Examples:
   undercurrent calibrate --spin harrow-fen-spin.csv -o harrow-fen-cal.json
   undercurrent calibrate --spin spin.csv --reference 49850 --refine -o cal.json
+  undercurrent calibrate --spin spin.csv --column bx=magX,by=magY,bz=magZ --unit bx=uT,by=uT,bz=uT -o cal.json
   undercurrent calibrate --flip0 north.csv --flip180 south.csv -o cal.json
   undercurrent calibrate --zero shield.csv -o cal.json --json
   undercurrent calibrate --show cal.json`,
@@ -61,6 +67,8 @@ Examples:
 			fs.Float64Var(&reference, "reference", 0, "field magnitude at the site, nT, for the spin method (0: keep the fitted ellipsoid's volume)")
 			fs.BoolVar(&refine, "refine", false, "refine the ellipsoid fit by least squares on |B| (spin method)")
 			fs.BoolVar(&asJSON, "json", false, "print the calibration as JSON instead of text")
+			rf.add(fs)
+			rf.addMissing(fs)
 		},
 		run: func(ctx context.Context, fs *pflag.FlagSet, args []string, stdout, stderr io.Writer) error {
 			if len(args) != 0 {
@@ -81,6 +89,19 @@ Examples:
 			if methods != 1 {
 				return usageErrorf("give exactly one of --spin, --flip0/--flip180, --zero or --show")
 			}
+			if out != "" {
+				if err := checkOutFile("-o", out, false); err != nil {
+					return err
+				}
+			}
+			opts, err := rf.options(fs)
+			if err != nil {
+				return err
+			}
+			read := func(role, path string) ([][3]float64, calibrate.Input, error) {
+				// A zero-field log is near zero by design: no unit check.
+				return readCalibrationLog(ctx, &rf, opts, role, path, role != "zero", stderr)
+			}
 			if show != "" {
 				cal, err := calibrate.Load(show)
 				if err != nil {
@@ -91,7 +112,7 @@ Examples:
 			var cal *calibrate.Calibration
 			switch {
 			case spin != "":
-				r, in, err := readCalibrationLog("spin", spin)
+				r, in, err := read("spin", spin)
 				if err != nil {
 					return err
 				}
@@ -101,7 +122,7 @@ Examples:
 				}
 				cal = calibrate.FromEllipsoid(res, in)
 			case zero != "":
-				r, in, err := readCalibrationLog("zero", zero)
+				r, in, err := read("zero", zero)
 				if err != nil {
 					return err
 				}
@@ -115,11 +136,11 @@ Examples:
 				if len(flipAxis) != 1 || axis < 0 {
 					return usageErrorf("--flip-axis %q: want x, y or z", flipAxis)
 				}
-				r0, in0, err := readCalibrationLog("flip0", flip0)
+				r0, in0, err := read("flip0", flip0)
 				if err != nil {
 					return err
 				}
-				r1, in1, err := readCalibrationLog("flip180", flip180)
+				r1, in1, err := read("flip180", flip180)
 				if err != nil {
 					return err
 				}
@@ -128,6 +149,9 @@ Examples:
 					return err
 				}
 				cal = calibrate.FromOffset(calibrate.MethodFlip, res, in0, in1)
+			}
+			if err := ctx.Err(); err != nil {
+				return err
 			}
 			if out != "" {
 				if err := cal.Save(out); err != nil {
@@ -155,12 +179,17 @@ func inFile(path string, err error) error {
 	return fmt.Errorf("%s: %s", path, strings.TrimPrefix(err.Error(), "calibrate: "))
 }
 
-// readCalibrationLog reads the field readings of a calibration log and
-// records the file with its checksum.
-func readCalibrationLog(role, path string) ([][3]float64, calibrate.Input, error) {
-	s, err := ingest.ReadSamples(path)
+// readCalibrationLog reads the field readings of a calibration log with
+// the input flags' options, prints the warnings about it (missing rows
+// dropped, a field unit that looks wrong when checkUnits) and records the
+// file with its checksum.
+func readCalibrationLog(ctx context.Context, rf *readFlags, opts []ingest.Option, role, path string, checkUnits bool, stderr io.Writer) ([][3]float64, calibrate.Input, error) {
+	s, warns, err := rf.readLog(ctx, path, opts, checkUnits)
 	if err != nil {
 		return nil, calibrate.Input{}, err
+	}
+	for _, w := range warns {
+		fmt.Fprintf(stderr, "warning: %s\n", w)
 	}
 	r, err := calibrate.Readings(s)
 	if err != nil {

@@ -5,8 +5,10 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"os"
 	"sort"
 	"strings"
+	"syscall"
 
 	"github.com/spf13/pflag"
 )
@@ -63,14 +65,23 @@ func (c *command) flagSet(stderr io.Writer) *pflag.FlagSet {
 }
 
 func (c *command) printHelp(w io.Writer, fs *pflag.FlagSet) {
-	fmt.Fprintf(w, "usage: undercurrent %s %s\n\n%s\n", c.name, c.usage, c.summary)
+	fmt.Fprintf(w, "usage: %s\n\n%s\n", strings.TrimSpace("undercurrent "+c.name+" "+c.usage), c.summary)
 	if c.long != "" {
 		fmt.Fprintf(w, "\n%s\n", strings.TrimRight(c.long, "\n"))
 	}
 	if fs.HasFlags() {
 		fmt.Fprintf(w, "\nFlags:\n%s", fs.FlagUsages())
 	}
+	if c.name != "serve" && c.name != "version" {
+		fmt.Fprintf(w, "\n%s\n", interruptHelp)
+	}
 }
+
+// interruptHelp says what Ctrl-C does (serve documents its own draining).
+const interruptHelp = `Ctrl-C (SIGINT) or SIGTERM stops the command at the next stage (between
+batches while reading); it prints "interrupted", writes no output (files
+and directories appear whole or not at all) and exits with status 130
+(SIGINT) or 143 (SIGTERM).`
 
 func sortedCommands() []*command {
 	list := make([]*command, 0, len(commands))
@@ -88,6 +99,7 @@ func printCommands(w io.Writer) {
 		fmt.Fprintf(w, "  %-10s %s\n", c.name, c.summary)
 	}
 	fmt.Fprintf(w, "\nRun \"undercurrent help COMMAND\" or \"undercurrent COMMAND --help\" for details.\n")
+	fmt.Fprintf(w, "Ctrl-C (SIGINT) or SIGTERM stops a command at the next stage and writes no output: exit status 130 (143 for SIGTERM).\n")
 	fmt.Fprintf(w, "Start with \"undercurrent demo\" to run the whole job on a bundled example.\n")
 }
 
@@ -98,6 +110,9 @@ func run(ctx context.Context, args []string, stdout, stderr io.Writer) int {
 		return 2
 	}
 	name := args[0]
+	if name == "--version" || name == "-version" {
+		name = "version"
+	}
 	switch name {
 	case "help", "-h", "--help":
 		if len(args) > 1 {
@@ -128,7 +143,11 @@ func run(ctx context.Context, args []string, stdout, stderr io.Writer) int {
 		return 2
 	}
 	if err := c.run(ctx, fs, fs.Args(), stdout, stderr); err != nil {
-		fmt.Fprintf(stderr, "undercurrent %s: %v\n", name, err)
+		if ctx.Err() != nil && isInterrupt(err) {
+			fmt.Fprintf(stderr, "undercurrent %s: interrupted\n", name)
+			return interruptStatus(ctx)
+		}
+		fmt.Fprintf(stderr, "undercurrent %s: %s\n", name, cleanMessage(name, fs.Args(), err.Error()))
 		var ue *usageError
 		if errors.As(err, &ue) {
 			fmt.Fprintf(stderr, "run \"undercurrent help %s\" for usage\n", name)
@@ -137,4 +156,87 @@ func run(ctx context.Context, args []string, stdout, stderr io.Writer) int {
 		return 1
 	}
 	return 0
+}
+
+// signalCause is why the context ended when a signal arrived (see main).
+type signalCause struct{ sig os.Signal }
+
+func (s *signalCause) Error() string { return "interrupted by " + s.sig.String() }
+
+// isInterrupt reports whether err is the end of the command's context.
+func isInterrupt(err error) bool { return errors.Is(err, context.Canceled) }
+
+// interruptStatus is the exit status of an interrupted command: 128 plus
+// the signal's number (130 for SIGINT, 143 for SIGTERM), 130 when the
+// context was cancelled otherwise.
+func interruptStatus(ctx context.Context) int {
+	var sc *signalCause
+	if errors.As(context.Cause(ctx), &sc) {
+		if n, ok := sc.sig.(syscall.Signal); ok {
+			return 128 + int(n)
+		}
+	}
+	return 130
+}
+
+// internalWords are the names of the library packages, which start their
+// error messages ("ingest: ", "calibrate: "); the command's own prefix
+// says as much, so they are dropped from what is printed.
+var internalWords = map[string]bool{
+	"ingest": true, "calibrate": true, "simulate": true, "live": true,
+	"inverse": true, "report": true, "route": true,
+}
+
+// stageWords name internal steps in library messages; they are printed
+// as the stage's name.
+var stageWords = map[string]string{
+	"demodulate": "AC demodulation",
+	"tilt":       "tilt correction",
+	"ellipsoid":  "ellipsoid fit",
+}
+
+// cleanMessage prepares an error message for printing after
+// "undercurrent CMD: ": the library packages' prefixes and the command's
+// own name are dropped, as are words repeated by wrapping, but never a
+// part that is one of the command's arguments (a file named "report"), so
+// file, line and column stay. The wording of ingest's refusal of missing
+// values is fitted to the command.
+func cleanMessage(cmd string, args []string, msg string) string {
+	isArg := map[string]bool{}
+	for _, a := range args {
+		isArg[a] = true
+	}
+	parts := strings.Split(msg, ": ")
+	var out []string
+	for i, p := range parts {
+		if i < len(parts)-1 && !isArg[p] {
+			if internalWords[p] || p == cmd {
+				continue
+			}
+			if w, ok := stageWords[p]; ok {
+				p = w
+			}
+		}
+		if len(out) > 0 && out[len(out)-1] == p {
+			continue
+		}
+		out = append(out, p)
+	}
+	s := strings.Join(out, ": ")
+	const missing = "; missing values are not allowed by default"
+	if strings.HasSuffix(s, missing) {
+		s = strings.TrimSuffix(s, missing) + missingAdvice(cmd)
+	}
+	return s
+}
+
+// missingAdvice says how a command can take a log with missing values.
+func missingAdvice(cmd string) string {
+	switch cmd {
+	case "convert":
+		return "; --strict refuses missing values (without it they are carried over)"
+	case "locate", "calibrate", "replay":
+		return "; missing values are refused unless --drop-missing drops their rows"
+	}
+	return ""
 }

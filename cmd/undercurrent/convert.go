@@ -7,6 +7,7 @@ import (
 	"os"
 	"path/filepath"
 
+	"github.com/apache/arrow-go/v18/arrow/array"
 	"github.com/spf13/pflag"
 
 	"undercurrent/ingest"
@@ -23,10 +24,13 @@ func init() {
 detected from the content), maps it to the canonical columns (time, x, y,
 z in metres ENU, bx, by, bz in nT, group, ...) and writes OUT in the format
 given by its extension: .csv, .arrow (Arrow IPC file), .arrows (Arrow IPC
-stream) or .parquet. A conversion between these formats keeps every value
+stream) or .parquet, in any case; OUT's directory must exist. A conversion between these formats keeps every value
 exactly, with the frame, the WGS84 origin and header fields. OUT is
 written under a temporary name and renamed, so a failure leaves nothing
-half-written. Missing values (NaN) are carried over unless --strict.
+half-written. Missing values (NaN) are carried over unless --strict
+refuses them or --drop-missing drops their rows. It warns when the log has
+no readings, or when the field's median |B| is far from the Earth's field
+(a unit is probably wrong; see "undercurrent inspect").
 
 Examples:
   undercurrent convert harrow-fen-traverse.csv harrow-fen-traverse.parquet
@@ -34,6 +38,7 @@ Examples:
   undercurrent convert ../shared/data/iaga2002/bou20141101vmin.min base.arrows`,
 		setFlags: func(fs *pflag.FlagSet) {
 			rf.add(fs)
+			rf.addMissing(fs)
 			fs.BoolVar(&strict, "strict", false, "treat missing values (NaN, empty cells, nulls) as errors")
 		},
 		run: func(ctx context.Context, fs *pflag.FlagSet, args []string, stdout, stderr io.Writer) error {
@@ -41,27 +46,55 @@ Examples:
 				return usageErrorf("convert takes IN and OUT, got %d arguments", len(args))
 			}
 			in, out := args[0], args[1]
-			if _, err := ingest.FormatFromExt(out); err != nil {
-				return usageErrorf("OUT %s: want a .csv, .arrow, .arrows or .parquet name", out)
+			if strict && rf.dropMissing {
+				return usageErrorf("give --strict (refuse missing values) or --drop-missing (drop their rows), not both")
+			}
+			if err := checkLogExt(out); err != nil {
+				return usageErrorf("OUT %s: %v", out, err)
 			}
 			if a, errA := filepath.Abs(in); errA == nil {
 				if b, errB := filepath.Abs(out); errB == nil && a == b {
 					return usageErrorf("IN and OUT are the same file")
 				}
 			}
+			if err := checkParentDir(out); err != nil {
+				return fmt.Errorf("OUT %s: %w", out, err)
+			}
 			opts, err := rf.options(fs)
 			if err != nil {
 				return err
 			}
+			if rf.dropMissing {
+				// Rows are dropped in memory: the log is read whole.
+				s, warns, err := rf.readLog(ctx, in, opts, false)
+				if err != nil {
+					return err
+				}
+				if err := ctx.Err(); err != nil {
+					return err
+				}
+				if err := writeSamplesLog(out, s); err != nil {
+					return err
+				}
+				for _, w := range warns {
+					fmt.Fprintf(stderr, "warning: %s\n", w)
+				}
+				if w, err := checkFieldUnits(ctx, in, s.Bx, s.By, s.Bz, opts, true); err == nil && w != "" {
+					fmt.Fprintf(stderr, "warning: %s\n", w)
+				}
+				fmt.Fprintf(stderr, "wrote %s: %d rows\n", out, s.Len())
+				return nil
+			}
 			progress, done := rowProgress(stderr, "converting")
 			opts = append(opts, ingest.WithAllowMissing(!strict), progress)
-			r, err := ingest.Open(in, opts...)
+			r, err := await(ctx, func() (ingest.Reader, error) { return ingest.Open(in, opts...) })
 			if err != nil {
+				done()
 				return err
 			}
 			defer r.Release()
 			cr := &countingReader{Reader: r, ctx: ctx}
-			err = ingest.WriteReader(out, cr)
+			err = writeLog(out, cr)
 			done()
 			if err != nil {
 				return err
@@ -69,6 +102,12 @@ Examples:
 			if cr.ctx.Err() != nil {
 				os.Remove(out)
 				return cr.ctx.Err()
+			}
+			if cr.rows == 0 {
+				fmt.Fprintf(stderr, "warning: %s: no readings: %s has the columns and no rows\n", in, out)
+			}
+			if w, err := checkFieldUnits(ctx, in, cr.bx, cr.by, cr.bz, opts, true); err == nil && w != "" {
+				fmt.Fprintf(stderr, "warning: %s\n", w)
 			}
 			fmt.Fprintf(stderr, "wrote %s: %d rows\n", out, cr.rows)
 			return nil
@@ -78,12 +117,17 @@ Examples:
 
 // countingReader counts rows and stops at cancellation (the writer then
 // fails and leaves no output).
+// It keeps the field of the first rows for checkFieldUnits.
 type countingReader struct {
 	ingest.Reader
-	ctx  context.Context
-	rows int64
-	err  error
+	ctx        context.Context
+	rows       int64
+	err        error
+	bx, by, bz []float64
 }
+
+// keepRows is how many rows' field countingReader keeps.
+const keepRows = 1 << 16
 
 func (c *countingReader) Next() bool {
 	if err := c.ctx.Err(); err != nil {
@@ -93,7 +137,33 @@ func (c *countingReader) Next() bool {
 	if !c.Reader.Next() {
 		return false
 	}
-	c.rows += c.Reader.RecordBatch().NumRows()
+	rec := c.Reader.RecordBatch()
+	c.rows += rec.NumRows()
+	if len(c.bx) < keepRows {
+		var cols [3][]float64
+		for i, f := range rec.Schema().Fields() {
+			j := -1
+			switch f.Name {
+			case ingest.ColBx:
+				j = 0
+			case ingest.ColBy:
+				j = 1
+			case ingest.ColBz:
+				j = 2
+			}
+			if j >= 0 {
+				if a, ok := rec.Column(i).(*array.Float64); ok {
+					cols[j] = a.Float64Values()
+				}
+			}
+		}
+		if cols[0] != nil && cols[1] != nil && cols[2] != nil {
+			n := min(len(cols[0]), keepRows-len(c.bx))
+			c.bx = append(c.bx, cols[0][:n]...)
+			c.by = append(c.by, cols[1][:n]...)
+			c.bz = append(c.bz, cols[2][:n]...)
+		}
+	}
 	return true
 }
 

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"os"
 	"path/filepath"
 	"strconv"
 	"strings"
@@ -36,7 +37,8 @@ for a while and a buried steel object lies near one traverse.
 It then runs locate on the log as a surveyor would (demodulating the 50 Hz
 field, fitting each traverse, building the route) and writes into DIR the log
 (` + demoLog + `), results.json, results.csv, route.geojson and report.html,
-the crew report to open in a browser. DIR is written whole or not at all.
+the crew report to open in a browser. DIR is written whole or not at all;
+its parent directory must exist (the default's, out, is made).
 
 Examples:
   undercurrent demo
@@ -50,6 +52,12 @@ Examples:
 			}
 			if out == "" {
 				return usageErrorf("-o needs a directory")
+			}
+			if !fs.Changed("output") {
+				// The default out/demo is not a typo: make its parent.
+				if err := os.MkdirAll(filepath.Dir(out), 0o755); err != nil {
+					return err
+				}
 			}
 			return runDemo(ctx, out, stdout, progressOn(stderr))
 		},
@@ -67,7 +75,7 @@ func runDemo(ctx context.Context, out string, stdout, progress io.Writer) error 
 	if err != nil {
 		return err
 	}
-	s, err := simulate.Simulate(sc)
+	s, err := await(ctx, func() (*ingest.Samples, error) { return simulate.Simulate(sc) })
 	if err != nil {
 		return err
 	}
@@ -99,7 +107,7 @@ func runDemo(ctx context.Context, out string, stdout, progress io.Writer) error 
 		"ground-sigma":  "0.02", "min-cover": "0.6", "cover-code": o.coverCode,
 	}
 	var doc *report.Document
-	err = stageDir(out, o.keepNames, func(tmp string) error {
+	err = stageDir(ctx, out, o.keepNames, func(tmp string) error {
 		logPath := filepath.Join(tmp, demoLog)
 		if err := ingest.WriteSamples(logPath, s); err != nil {
 			return err
@@ -114,6 +122,9 @@ func runDemo(ctx context.Context, out string, stdout, progress io.Writer) error 
 				doc.Inputs[i].Path = filepath.Join(out, demoLog)
 			}
 		}
+		if err := ctx.Err(); err != nil {
+			return err
+		}
 		return writeDocFiles(tmp, doc)
 	})
 	if err != nil {
@@ -122,8 +133,8 @@ func runDemo(ctx context.Context, out string, stdout, progress io.Writer) error 
 	fmt.Fprintf(stdout, "simulated %s: %d readings on %d traverses (%s)\n", simulate.DemoPath, s.Len(), len(sc.Lines()), sc.Site)
 	printFindings(stdout, doc)
 	fmt.Fprintf(stdout, "done in %.1f s. Open the crew report: %s\n", time.Since(start).Seconds(), filepath.Join(out, "report.html"))
-	fmt.Fprintf(stdout, "the log and the other results are beside it; rerun the fit with:\n  undercurrent locate --freq 50 --window 0.1 --group-by group --sensor-height %g --ground-sigma 0.02 --min-cover 0.6 %s\n",
-		sc.Sensor.Height, filepath.Join(out, demoLog))
+	fmt.Fprintf(stdout, "the log and the other results are beside it; rerun the fit with:\n  undercurrent locate --freq 50 --window 0.1 --group-by group --sensor-height %g --ground-sigma 0.02 --min-cover 0.6 --cover-code %s %s -o %s\n",
+		sc.Sensor.Height, shellQuote(o.coverCode), shellQuote(filepath.Join(out, demoLog)), shellQuote(filepath.Clean(out)+"-rerun"))
 	return nil
 }
 
@@ -174,4 +185,13 @@ func soundGroups(doc *report.Document) (sound, readings int) {
 		}
 	}
 	return sound, readings
+}
+
+// shellQuote quotes s for a POSIX shell when it holds anything but plain
+// characters.
+func shellQuote(s string) string {
+	if s != "" && strings.Trim(s, "abcdefghijklmnopqrstuvwxyzABCDEFGHIJKLMNOPQRSTUVWXYZ0123456789-_./=:,+") == "" {
+		return s
+	}
+	return "'" + strings.ReplaceAll(s, "'", `'\''`) + "'"
 }

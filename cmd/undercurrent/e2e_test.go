@@ -16,6 +16,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"regexp"
 	"strconv"
 	"strings"
 	"testing"
@@ -501,6 +502,22 @@ func TestDemo(t *testing.T) {
 	if !strings.Contains(out, filepath.Join(dir, "report.html")) {
 		t.Errorf("demo does not say where the report is:\n%s", out)
 	}
+	// The printed command reruns the fit with every setting the demo used,
+	// the cover code and an output directory included, and its summary
+	// gives each AC current's phase with its sigma.
+	_, rerun, ok := strings.Cut(out, "rerun the fit with:\n  ")
+	rerun, _, _ = strings.Cut(rerun, "\n")
+	args := shellWords(rerun)
+	if !ok || len(args) < 2 || args[0] != "undercurrent" || !strings.Contains(rerun, "--cover-code 'UK 11 kV") || !strings.Contains(rerun, " -o ") {
+		t.Fatalf("demo's rerun command %q lacks settings", rerun)
+	}
+	summary := mustCLI(t, args[1:]...)
+	if !regexp.MustCompile(`± [0-9.e-]+ ∠-?[0-9]+° ± [0-9.e-]+°`).MatchString(summary) {
+		t.Errorf("AC summary lacks the phase sigma:\n%s", summary)
+	}
+	if _, err := os.Stat(filepath.Join(dir+"-rerun", "results.json")); err != nil {
+		t.Errorf("the rerun wrote no results: %v", err)
+	}
 	for _, name := range append([]string{demoLog}, resultFiles...) {
 		fi, err := os.Stat(filepath.Join(dir, name))
 		if err != nil || fi.Size() == 0 {
@@ -840,4 +857,31 @@ func TestE2ETilt(t *testing.T) {
 		}
 		checkCrossing(t, g.Key, g.Sources[0], truth[g.Key][0], 0, 0)
 	}
+}
+
+// shellWords splits a command line printed for a POSIX shell: words
+// separated by spaces, single quotes around a word with spaces.
+func shellWords(s string) []string {
+	var words []string
+	var w strings.Builder
+	in, any := false, false
+	for _, r := range s {
+		switch {
+		case r == '\'':
+			in, any = !in, true
+		case r == ' ' && !in:
+			if any {
+				words = append(words, w.String())
+			}
+			w.Reset()
+			any = false
+		default:
+			w.WriteRune(r)
+			any = true
+		}
+	}
+	if any {
+		words = append(words, w.String())
+	}
+	return words
 }

@@ -57,8 +57,8 @@ func TestInspectText(t *testing.T) {
 	}
 	for _, want := range []string{
 		"rows      11",
-		"median step 1 s (1 Hz); 1 gaps, longest 11 s after row 9",
-		"probably in mT (try units bx=mT,by=mT,bz=mT)",
+		"median step 1 s (1 Hz); 1 gap, longest 11 s after row 9",
+		"probably in mT (try --unit bx=mT,by=mT,bz=mT)",
 		"group  traverse",
 	} {
 		if !strings.Contains(out, want) {
@@ -119,7 +119,7 @@ func TestInspectErrors(t *testing.T) {
 		want string
 	}{
 		{"no file", []string{"inspect"}, 2, "inspect takes one FILE"},
-		{"bad cell", []string{"inspect", bad}, 1, `undercurrent inspect: ingest: ` + bad + `:3: column bz: "1oo.0" is not a number`},
+		{"bad cell", []string{"inspect", bad}, 1, "undercurrent inspect: " + bad + `:3: column bz: "1oo.0" is not a number`},
 		{"absent file", []string{"inspect", filepath.Join(t.TempDir(), "none.csv")}, 1, "cannot open: no such file"},
 		{"bad origin", []string{"inspect", "--origin", "north", bad}, 2, "--origin"},
 		{"bad mapping", []string{"inspect", "--columns", "bq=B", bad}, 1, `column mapping "bq=B"`},

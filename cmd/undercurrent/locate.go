@@ -30,8 +30,6 @@ import (
 type locateOptions struct {
 	calibration  string
 	base         string
-	baseFrame    bool // --iaga-baseline-frame
-	decimalComma bool // --decimal-comma, when given (see given)
 	freq         float64
 	window       float64
 	count        string
@@ -48,10 +46,13 @@ type locateOptions struct {
 	robust       bool
 	despike      bool
 	stepK        float64
-	columns      []string
-	units        []string
 	title        string
 	workers      int
+	// read holds the input flags shared by every command that reads logs.
+	read readFlags
+
+	// readOpts are the ingest options of the input flags (run sets them).
+	readOpts []ingest.Option
 
 	// set by check
 	nCount int // 0 = auto
@@ -67,8 +68,6 @@ var resultFiles = []string{report.FileJSON, report.FileCSV, report.FileGeoJSON, 
 func (o *locateOptions) setFlags(fs *pflag.FlagSet) {
 	fs.StringVar(&o.calibration, "calibration", "", "apply the sensor calibration in `CAL.json` (from undercurrent calibrate)")
 	fs.StringVar(&o.base, "base", "", "subtract the diurnal variation recorded by the base station log `BASE` (any log format, IAGA-2002 too)")
-	fs.BoolVar(&o.decimalComma, "decimal-comma", false, "CSV numbers write decimals with a comma (12,5); default: detected from the first data row when the delimiter is not a comma; --decimal-comma=false refuses them")
-	fs.BoolVar(&o.baseFrame, "iaga-baseline-frame", false, "leave an IAGA-2002 base log's variation data in the observatory's baseline frame instead of turning them to geographic north by its DECBAS")
 	fs.Float64Var(&o.freq, "freq", 0, "demodulate the AC field at `HZ` (50, 60, 16.7...) and fit RMS currents with phase; without it the DC field is fitted")
 	fs.Float64Var(&o.window, "window", 0, "AC demodulation window, `S` seconds (default ten cycles)")
 	fs.StringVar(&o.count, "count", "auto", "number of line conductors per fit, `N` (1-4) or auto")
@@ -84,10 +83,10 @@ func (o *locateOptions) setFlags(fs *pflag.FlagSet) {
 	fs.BoolVar(&o.robust, "robust", false, "down-weight outlying readings (Huber weights)")
 	fs.BoolVar(&o.despike, "despike", false, "remove spikes (Hampel filter) before fitting")
 	fs.Float64Var(&o.stepK, "step-k", 0, "report a step in current when it exceeds `K` standard deviations (default 3)")
-	fs.StringSliceVar(&o.columns, "column", nil, "map a column: `CANON=NAME` (bx=Bx_uT, group=traverse); repeatable")
-	fs.StringSliceVar(&o.units, "unit", nil, "unit of a column: `CANON=UNIT` (bx=uT, time=ms); repeatable")
 	fs.StringVar(&o.title, "title", "", "title of the report (default: the site named in the log, or the log's name)")
 	fs.IntVar(&o.workers, "workers", 0, "fit `N` groups at a time (default: the number of CPUs)")
+	o.read.add(fs)
+	o.read.addMissing(fs)
 }
 
 // check validates the options and records the ones given.
@@ -147,7 +146,7 @@ func (o *locateOptions) check(fs *pflag.FlagSet) error {
 		return usageErrorf("--cover-code names where --min-cover comes from; give --min-cover too")
 	}
 	if o.groupBy != "" {
-		for _, c := range o.columns {
+		for _, c := range append(append([]string(nil), o.read.columns...), o.read.columnsOld...) {
 			if k, _, _ := strings.Cut(c, "="); strings.EqualFold(strings.TrimSpace(k), ingest.ColGroup) && o.groupBy != ingest.ColGroup {
 				return usageErrorf("--group-by %s and --column %s both say which column holds the groups; give one", o.groupBy, c)
 			}
@@ -198,10 +197,21 @@ path is so long against the conductor's distance that the model may be off
 by more than 0.1% near the peak, the run warns and suggests shorter windows
 or a slower walk.
 
+The input flags (--column, --unit, --delimiter, --header, --comment,
+--frame, --origin, --decimal-comma, --drop-missing), the same for every
+command that reads logs, apply to the survey logs; the base log (--base)
+is read as it is, with missing values allowed (--iaga-baseline-frame
+applies to it). Each survey log's median |B| is checked against the
+Earth's field (about 20000-70000 nT, in every raw log): far from it, the
+run warns that the field's unit is probably wrong (fine for a log with the
+Earth's field removed); impossibly far (below 1 pT or above 0.1 T, as an
+Earth field in tesla read as nT) it refuses, unless --unit gives the
+field's unit.
+
 With -o DIR it writes results.json (the result document), results.csv,
 route.geojson and report.html (the crew report) into DIR; the directory is
-written whole or not at all. --json prints the result document on stdout.
-Without either it prints a summary.
+written whole or not at all, and its parent must exist. --json prints the
+result document on stdout. Without either it prints a summary.
 
 The estimates are not a verified locate: confirm before excavation by
 approved methods, treat every conductor as live; local codes and licensed
@@ -220,15 +230,21 @@ Examples:
 			if err := o.check(fs); err != nil {
 				return err
 			}
+			var err error
+			if o.readOpts, err = o.read.options(fs); err != nil {
+				return err
+			}
 			start := time.Now()
 			doc, err := runLocate(ctx, o, args, progressOn(stderr))
 			if err != nil {
 				return err
 			}
 			if o.out != "" {
-				if err := writeResults(o.out, doc, o.keepNames); err != nil {
+				if err := writeResults(ctx, o.out, doc, o.keepNames); err != nil {
 					return err
 				}
+			} else if err := ctx.Err(); err != nil {
+				return err
 			}
 			if o.json {
 				return report.WriteJSON(stdout, doc)
@@ -288,19 +304,20 @@ type survey struct {
 // runLocate reads, corrects, fits and analyses; progress, when not nil,
 // receives a progress bar.
 func runLocate(ctx context.Context, o *locateOptions, logs []string, progress io.Writer) (*report.Document, error) {
-	sv, err := readSurvey(o, logs)
+	sv, err := readSurvey(ctx, o, logs)
 	if err != nil {
 		return nil, err
 	}
 	if err := fitGroups(ctx, o, sv, progress); err != nil {
 		return nil, err
 	}
-	return buildDocument(o, sv)
+	return buildDocument(ctx, o, sv)
 }
 
 // readSurvey reads the logs, applies the corrections, demodulates and
-// splits the readings into groups.
-func readSurvey(o *locateOptions, logs []string) (*survey, error) {
+// splits the readings into groups. It stops with ctx's error between
+// stages (and between batches while reading) once ctx is done.
+func readSurvey(ctx context.Context, o *locateOptions, logs []string) (*survey, error) {
 	doc := &report.Document{
 		SchemaVersion: report.SchemaVersion,
 		Tool:          report.Tool{Name: "undercurrent", Version: toolVersion()},
@@ -322,31 +339,23 @@ func readSurvey(o *locateOptions, logs []string) (*survey, error) {
 	var base *ingest.Samples
 	if o.base != "" {
 		var err error
-		if base, err = ingest.ReadSamples(o.base, ingest.WithAllowMissing(true), ingest.WithIAGABaselineFrame(o.baseFrame)); err != nil {
+		if base, err = readSamples(ctx, o.base, ingest.WithAllowMissing(true), ingest.WithIAGABaselineFrame(o.read.iagaBaseline)); err != nil {
 			return nil, err
 		}
 		doc.Inputs = append(doc.Inputs, fileInput("base", o.base, base.Len()))
 	}
-	var opts []ingest.Option
-	if len(o.columns) > 0 {
-		opts = append(opts, ingest.WithColumns(o.columns...))
-	}
+	opts := append([]ingest.Option(nil), o.readOpts...)
 	if o.groupBy != "" && o.groupBy != ingest.ColGroup {
 		opts = append(opts, ingest.WithColumns(ingest.ColGroup+"="+o.groupBy))
-	}
-	if len(o.units) > 0 {
-		opts = append(opts, ingest.WithUnits(o.units...))
-	}
-	if _, given := o.given["decimal-comma"]; given {
-		opts = append(opts, ingest.WithDecimalComma(o.decimalComma))
 	}
 	index := map[string]*group{}
 	var baseNotes []string
 	for _, path := range logs {
-		s, err := ingest.ReadSamples(path, opts...)
+		s, warns, err := o.read.readLog(ctx, path, opts, true)
 		if err != nil {
 			return nil, err
 		}
+		sv.warnings = append(sv.warnings, warns...)
 		if s.X == nil || s.Y == nil || s.Z == nil {
 			return nil, fmt.Errorf("%s has no positions: locate needs x, y, z (or lat, lon, height) columns; map them with --column", path)
 		}
@@ -388,8 +397,15 @@ func readSurvey(o *locateOptions, logs []string) (*survey, error) {
 				sv.warnings = append(sv.warnings, path+": "+w)
 			}
 		}
+		if err := ctx.Err(); err != nil {
+			return nil, err
+		}
 		doc.Inputs = append(doc.Inputs, fileInput("survey", path, s.Len()))
-		if err := addReadings(o, sv, index, s); err != nil {
+		// Demodulation takes no context either.
+		if _, err := await(ctx, func() (struct{}, error) { return struct{}{}, addReadings(o, sv, index, s) }); err != nil {
+			return nil, err
+		}
+		if err := ctx.Err(); err != nil {
 			return nil, err
 		}
 	}
@@ -612,7 +628,10 @@ feed:
 
 // buildDocument turns the fits into the result document; report.Build
 // runs the along-route analysis.
-func buildDocument(o *locateOptions, sv *survey) (*report.Document, error) {
+func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.Document, error) {
+	if err := ctx.Err(); err != nil {
+		return nil, err
+	}
 	head := *sv.doc
 	head.Warnings = append(head.Warnings, sv.warnings...)
 	if w := travelWarning(sv); w != "" {
@@ -622,15 +641,23 @@ func buildDocument(o *locateOptions, sv *survey) (*report.Document, error) {
 	for i, g := range sv.groups {
 		fits[i] = report.Fit{Key: g.key, Problem: g.problem(sv.ac, o.noise), Result: g.res, Err: g.err, Settings: o.fitSettings()}
 	}
-	doc, err := report.Build(head, fits, &report.BuildSettings{
-		SensorHeight: o.sensorHeight,
-		MinCover:     o.minCover,
-		CoverCode:    o.coverCode,
-		GroundSigma:  o.groundSigma,
-		StepK:        o.stepK,
-		Noise:        o.noise,
+	// report.Build takes no context; its along-route analysis (the dipole
+	// refits above all) can take seconds, so an interrupt is not kept
+	// waiting for it.
+	doc, err := await(ctx, func() (*report.Document, error) {
+		return report.Build(head, fits, &report.BuildSettings{
+			SensorHeight: o.sensorHeight,
+			MinCover:     o.minCover,
+			CoverCode:    o.coverCode,
+			GroundSigma:  o.groundSigma,
+			StepK:        o.stepK,
+			Noise:        o.noise,
+		})
 	})
 	if err != nil {
+		return nil, err
+	}
+	if err := ctx.Err(); err != nil {
 		return nil, err
 	}
 	if err := doc.Validate(); err != nil {
@@ -698,7 +725,11 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 	}
 	fmt.Fprintf(w, "depths are %s; currents %s, one-sigma uncertainties\n", ref, map[bool]string{true: "RMS with phase", false: "DC"}[doc.Signal.Mode == report.SignalAC])
 	tracks := len(doc.Conductors) > 0
-	fmt.Fprintf(w, "%-8s %10s %18s %16s %9s", "group", "chainage", "current (A)", "depth (m)", "rms (nT)")
+	cw := 18 // current column
+	if doc.Signal.Mode == report.SignalAC {
+		cw = 30 // RMS and phase, each with its sigma
+	}
+	fmt.Fprintf(w, "%-8s %10s %*s %16s %9s", "group", "chainage", cw, "current (A)", "depth (m)", "rms (nT)")
 	if tracks {
 		// Which conductor along the route each source belongs to: 1 is the
 		// route's own, 2, 3, ... the further ones followed (doc.Conductors).
@@ -715,7 +746,7 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 			ch = fmt.Sprintf("%.1f m", *g.Chainage)
 		}
 		if len(g.Sources) == 0 {
-			fmt.Fprintf(w, "%-8s %10s %18s %16s %9.3g  %s\n", key, ch, "-", "-", g.RMS, g.Problem)
+			fmt.Fprintf(w, "%-8s %10s %*s %16s %9.3g  %s\n", key, ch, cw, "-", "-", g.RMS, g.Problem)
 			continue
 		}
 		for i, s := range g.Sources {
@@ -727,8 +758,10 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 			switch {
 			case s.Kind == report.KindDipole:
 				cur = "object"
+			case s.Phase != nil && s.PhaseSigma != nil:
+				cur = fmt.Sprintf("%.3g ± %.2g ∠%.0f° ± %.2g°", s.Current, s.CurrentSigma, *s.Phase, *s.PhaseSigma)
 			case s.Phase != nil:
-				cur = fmt.Sprintf("%.3g∠%.0f° ± %.2g", s.Current, *s.Phase, s.CurrentSigma)
+				cur = fmt.Sprintf("%.3g ± %.2g ∠%.0f°", s.Current, s.CurrentSigma, *s.Phase)
 			}
 			note := ""
 			if i == 0 && g.Problem != "" {
@@ -744,7 +777,7 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 				}
 				note = fmt.Sprintf(" %9s", c) + note
 			}
-			fmt.Fprintf(w, "%-8s %10s %18s %16s %9.3g%s\n", k, ch, cur, fmt.Sprintf("%.2f ± %.2g", s.Depth, s.DepthSigma), g.RMS, note)
+			fmt.Fprintf(w, "%-8s %10s %*s %16s %9.3g%s\n", k, ch, cw, cur, fmt.Sprintf("%.2f ± %.2g", s.Depth, s.DepthSigma), g.RMS, note)
 		}
 	}
 	if len(doc.Findings) == 0 {
@@ -766,6 +799,11 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 func checkOutDir(dir string, keep []string) error {
 	fi, err := os.Lstat(dir)
 	if errors.Is(err, os.ErrNotExist) {
+		// Only the directory itself is made: a missing parent is most
+		// likely a typo, which should not grow a new tree.
+		if err := checkParentDir(dir); err != nil {
+			return fmt.Errorf("-o %s: %w", dir, err)
+		}
 		return nil
 	}
 	if err != nil {
@@ -795,15 +833,17 @@ func checkOutDir(dir string, keep []string) error {
 // dir's place (an earlier result directory, holding only names locate
 // writes and keep, is replaced). On any error nothing is left behind and
 // dir is as it was.
-func stageDir(dir string, keep []string, fill func(tmp string) error) (err error) {
+//
+// Once ctx is done it stops before dir is touched and returns ctx's error.
+func stageDir(ctx context.Context, dir string, keep []string, fill func(tmp string) error) (err error) {
 	dir = filepath.Clean(dir) // "results/" renames as "results"
 	if err := checkOutDir(dir, keep); err != nil {
 		return err
 	}
-	parent := filepath.Dir(dir)
-	if err := os.MkdirAll(parent, 0o755); err != nil {
+	if err := ctx.Err(); err != nil {
 		return err
 	}
+	parent := filepath.Dir(dir)
 	tmp, err := os.MkdirTemp(parent, "."+filepath.Base(dir)+".tmp-")
 	if err != nil {
 		return err
@@ -817,6 +857,9 @@ func stageDir(dir string, keep []string, fill func(tmp string) error) (err error
 		return err
 	}
 	if err := os.Chmod(tmp, 0o755); err != nil {
+		return err
+	}
+	if err := ctx.Err(); err != nil {
 		return err
 	}
 	if _, err := os.Lstat(dir); errors.Is(err, os.ErrNotExist) {
@@ -850,6 +893,21 @@ func writeDocFiles(dir string, doc *report.Document) error {
 }
 
 // writeResults writes the result directory of a locate run.
-func writeResults(dir string, doc *report.Document, keep []string) error {
-	return stageDir(dir, keep, func(tmp string) error { return writeDocFiles(tmp, doc) })
+func writeResults(ctx context.Context, dir string, doc *report.Document, keep []string) error {
+	return stageDir(ctx, dir, keep, func(tmp string) error { return writeDocFiles(tmp, doc) })
+}
+
+// checkParentDir refuses an output path whose directory does not exist.
+func checkParentDir(path string) error {
+	parent := filepath.Dir(filepath.Clean(path))
+	fi, err := os.Stat(parent)
+	switch {
+	case errors.Is(err, os.ErrNotExist):
+		return fmt.Errorf("output directory %s does not exist", parent)
+	case err != nil:
+		return fmt.Errorf("output directory %s: %w", parent, err)
+	case !fi.IsDir():
+		return fmt.Errorf("output directory %s is not a directory", parent)
+	}
+	return nil
 }

@@ -273,7 +273,7 @@ func BenchmarkLocateRoute31Files(b *testing.B) {
 		if err != nil {
 			b.Fatal(err)
 		}
-		if err := writeResults(out, doc, nil); err != nil {
+		if err := writeResults(b.Context(), out, doc, nil); err != nil {
 			b.Fatal(err)
 		}
 	}

@@ -12,8 +12,30 @@ import (
 )
 
 func main() {
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
+	ctx, stop := signalContext()
 	code := run(ctx, os.Args[1:], os.Stdout, os.Stderr)
 	stop()
 	os.Exit(code)
+}
+
+// signalContext returns a context that ends at the first SIGINT (Ctrl-C)
+// or SIGTERM, with a signalCause naming the signal (run turns it into the
+// exit status). After the first signal the default handling is restored,
+// so a second Ctrl-C ends the process at once.
+func signalContext() (context.Context, func()) {
+	ctx, cancel := context.WithCancelCause(context.Background())
+	sigs := make(chan os.Signal, 1)
+	signal.Notify(sigs, os.Interrupt, syscall.SIGTERM)
+	go func() {
+		select {
+		case sig := <-sigs:
+			signal.Stop(sigs)
+			cancel(&signalCause{sig: sig})
+		case <-ctx.Done():
+		}
+	}()
+	return ctx, func() {
+		signal.Stop(sigs)
+		cancel(nil)
+	}
 }

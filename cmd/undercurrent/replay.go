@@ -61,6 +61,7 @@ Examples:
 			fs.StringVar(&o.token, "token", "", "broker token")
 			fs.DurationVar(&o.wait, "wait", 10*time.Second, "wait up to `DURATION` for the broker's data stream (created by serve)")
 			o.read.add(fs)
+			o.read.addMissing(fs)
 		},
 		run: func(ctx context.Context, fs *pflag.FlagSet, args []string, stdout, stderr io.Writer) error {
 			return runReplay(ctx, &o, fs, args, stdout)
@@ -96,9 +97,12 @@ func runReplay(ctx context.Context, o *replayOptions, fs *pflag.FlagSet, args []
 		return err
 	}
 	opts = append(opts, ingest.WithAllowBackwards(true)) // rows of several sensors interleave
-	s, err := ingest.ReadSamples(args[0], opts...)
+	s, warns, err := o.read.readLog(ctx, args[0], opts, false)
 	if err != nil {
 		return err
+	}
+	for _, w := range warns {
+		fmt.Fprintf(stdout, "warning: %s\n", w)
 	}
 	batches, err := broker.SplitSamples(s, o.asset, o.sensor, o.batch.Seconds())
 	if err != nil {

@@ -6,7 +6,6 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"path/filepath"
 	"strconv"
 	"strings"
 
@@ -30,7 +29,8 @@ survey pattern, sensor height, noise and distortion, the Earth's field and
 its drift; see testdata/demo/fenwick-lane.toml for a commented example) and
 writes the log a sensor would have recorded. The output format follows the
 extension of LOG: .csv, .arrow (Arrow IPC file), .arrows (Arrow IPC stream)
-or .parquet. Each survey line gets its own value in the group column.
+or .parquet, in any case. Each survey line gets its own value in the group
+column. The directory of each output file must exist.
 
 Use it to plan a survey (is this current detectable at this depth with this
 sensor?) and to check the locate command against known answers. It prints
@@ -54,12 +54,17 @@ Examples:
 			if out == "" {
 				return usageErrorf("missing -o LOG: where to write the log")
 			}
-			if err := checkLogExt(out); err != nil {
-				return usageErrorf("-o %s: %v", out, err)
+			if err := checkOutFile("-o", out, true); err != nil {
+				return err
 			}
 			if baseOut != "" {
-				if err := checkLogExt(baseOut); err != nil {
-					return usageErrorf("--base-log %s: %v", baseOut, err)
+				if err := checkOutFile("--base-log", baseOut, true); err != nil {
+					return err
+				}
+			}
+			if truthOut != "" {
+				if err := checkOutFile("--truth", truthOut, false); err != nil {
+					return err
 				}
 			}
 			sc, err := simulate.Load(args[0])
@@ -72,11 +77,22 @@ Examples:
 			if baseOut != "" && sc.Base == nil {
 				return fmt.Errorf("%s has no [base] table, so there is no base-station log to write", args[0])
 			}
-			s, err := simulate.Simulate(sc)
+			s, err := await(ctx, func() (*ingest.Samples, error) { return simulate.Simulate(sc) })
 			if err != nil {
 				return err
 			}
-			if err := ingest.WriteSamples(out, s); err != nil {
+			var b *ingest.Samples
+			if baseOut != "" {
+				if b, err = simulate.SimulateBase(sc); err != nil {
+					return err
+				}
+			}
+			// Stop before writing anything once interrupted; the files
+			// below are written quickly, each whole or not at all.
+			if err := ctx.Err(); err != nil {
+				return err
+			}
+			if err := writeSamplesLog(out, s); err != nil {
 				return err
 			}
 			switch n := len(sc.Lines()); {
@@ -88,11 +104,7 @@ Examples:
 				fmt.Fprintf(stdout, "wrote %s: %d readings on %d survey lines over %s\n", out, s.Len(), n, span(s.Time))
 			}
 			if baseOut != "" {
-				b, err := simulate.SimulateBase(sc)
-				if err != nil {
-					return err
-				}
-				if err := ingest.WriteSamples(baseOut, b); err != nil {
+				if err := writeSamplesLog(baseOut, b); err != nil {
 					return err
 				}
 				fmt.Fprintf(stdout, "wrote %s: %d base-station readings\n", baseOut, b.Len())
@@ -108,20 +120,6 @@ Examples:
 		},
 	})
 }
-
-// checkLogExt checks that a log file name has an extension ingest writes.
-func checkLogExt(path string) error {
-	switch ext := extOf(path); ext {
-	case ".csv", ".arrow", ".arrows", ".parquet":
-		return nil
-	case "":
-		return fmt.Errorf("no extension: name the file .csv, .arrow, .arrows or .parquet")
-	default:
-		return fmt.Errorf("cannot write %q files: use .csv, .arrow, .arrows or .parquet", ext)
-	}
-}
-
-func extOf(path string) string { return strings.ToLower(filepath.Ext(path)) }
 
 // span formats the duration of a log.
 func span(t []float64) string {

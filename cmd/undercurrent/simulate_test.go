@@ -102,7 +102,9 @@ func TestSimulateErrors(t *testing.T) {
 	}{
 		{"no scenario", []string{"-o", filepath.Join(dir, "x.csv")}, 2, "want one SCENARIO"},
 		{"no output", []string{good}, 2, "missing -o"},
-		{"bad extension", []string{good, "-o", filepath.Join(dir, "x.txt")}, 2, `".txt"`},
+		{"bad extension", []string{good, "-o", filepath.Join(dir, "x.xlsx")}, 2, `".xlsx"`},
+		{"missing directory", []string{good, "-o", filepath.Join(dir, "nodir", "x.csv")}, 1, "output directory " + filepath.Join(dir, "nodir") + " does not exist"},
+		{"missing truth directory", []string{good, "-o", filepath.Join(dir, "x.csv"), "--truth", filepath.Join(dir, "nodir", "t.csv")}, 1, "output directory " + filepath.Join(dir, "nodir") + " does not exist"},
 		{"no extension", []string{good, "-o", filepath.Join(dir, "x")}, 2, "no extension"},
 		{"bad scenario", []string{bad, "-o", filepath.Join(dir, "x.csv")}, 1, `bad.toml:4:8: conductor 1 (""): unknown kind "wire"`},
 		{"missing scenario", []string{filepath.Join(dir, "none.toml"), "-o", filepath.Join(dir, "x.csv")}, 1, "none.toml"},

@@ -14,6 +14,13 @@ func init() {
 		name:    "version",
 		usage:   "",
 		summary: "print the version of undercurrent and of Go it was built with",
+		long: `Version prints the version of undercurrent (a module version, or
+"(devel)" for a build from a source tree) and the Go release it was built
+with; "undercurrent --version" does the same.
+
+Examples:
+  undercurrent version
+  undercurrent --version`,
 		run: func(ctx context.Context, fs *pflag.FlagSet, args []string, stdout, stderr io.Writer) error {
 			if len(args) != 0 {
 				return usageErrorf("version takes no arguments")

@@ -1,0 +1,377 @@
+package main
+
+import (
+	"context"
+	"fmt"
+	"math"
+	"sort"
+	"strconv"
+	"strings"
+
+	"github.com/spf13/pflag"
+
+	"undercurrent/ingest"
+)
+
+// readFlags are the options that say how to read a log. Every command that
+// reads logs (inspect, convert, locate, calibrate, replay) declares them
+// with add, so that they take the same input flags.
+type readFlags struct {
+	columns []string
+	units   []string
+	// columnsOld and unitsOld hold the plural spellings --columns and
+	// --units, kept as hidden aliases of --column and --unit.
+	columnsOld []string
+	unitsOld   []string
+	delimiter  string
+	comment    string
+	header     []string
+	frame      string
+	origin     string
+	// iagaBaseline leaves IAGA-2002 variation data in the baseline frame.
+	iagaBaseline bool
+	decimalComma bool
+	// dropMissing drops rows with a missing value (addMissing).
+	dropMissing bool
+}
+
+// fieldUnits lists the field units ingest accepts, for help texts.
+const fieldUnits = "nT, pT, uT, mT, T, G or mG"
+
+func (f *readFlags) add(fs *pflag.FlagSet) {
+	fs.StringSliceVar(&f.columns, "column", nil, "map canonical columns to the file's names: `CANON=NAME`, e.g. bx=Bx_uT,time=t_s,group=traverse (repeatable)")
+	fs.StringSliceVar(&f.units, "unit", nil, "units of columns: `CANON=UNIT`, e.g. bx=uT,time=ms (field nT/pT/uT/mT/T/G/mG, length m/cm/mm/km/ft; repeatable)")
+	fs.StringSliceVar(&f.columnsOld, "columns", nil, "same as --column")
+	fs.StringSliceVar(&f.unitsOld, "units", nil, "same as --unit")
+	_ = fs.MarkHidden("columns")
+	_ = fs.MarkHidden("units")
+	fs.StringVar(&f.delimiter, "delimiter", "", `CSV delimiter: one character, "tab" or "space" (default: guessed)`)
+	fs.StringVar(&f.comment, "comment", "#", "prefix of CSV comment lines")
+	fs.StringSliceVar(&f.header, "header", nil, "column names for a CSV file without a header line")
+	fs.StringVar(&f.frame, "frame", "enu", "axes of the field and position columns: enu, ned or sensor")
+	fs.StringVar(&f.origin, "origin", "first", "origin for WGS84 positions: first, mean or LAT,LON[,HEIGHT]")
+	fs.BoolVar(&f.decimalComma, "decimal-comma", false, "CSV numbers write decimals with a comma (12,5); default: detected from the first data row when the delimiter is not a comma; --decimal-comma=false refuses them")
+	fs.BoolVar(&f.iagaBaseline, "iaga-baseline-frame", false, "leave IAGA-2002 variation data (H D Z, H E Z; a base-station log too) in the observatory's baseline frame instead of turning them to geographic north by the header's DECBAS")
+}
+
+// addMissing declares --drop-missing, for the commands that need every
+// value of a row (inspect counts missing values and convert carries them).
+func (f *readFlags) addMissing(fs *pflag.FlagSet) {
+	fs.BoolVar(&f.dropMissing, "drop-missing", false, "drop rows with a missing value (NaN, empty cell, null) in time, position or field, with a warning, instead of refusing the log")
+}
+
+// options turns the flags into ingest options; fs may be nil (no flag
+// given).
+func (f *readFlags) options(fs *pflag.FlagSet) ([]ingest.Option, error) {
+	changed := func(name string) bool { return fs != nil && fs.Changed(name) }
+	var opts []ingest.Option
+	f.columns = append(f.columns, f.columnsOld...)
+	f.units = append(f.units, f.unitsOld...)
+	f.columnsOld, f.unitsOld = nil, nil
+	if len(f.columns) > 0 {
+		opts = append(opts, ingest.WithColumns(f.columns...))
+	}
+	if len(f.units) > 0 {
+		opts = append(opts, ingest.WithUnits(f.units...))
+	}
+	switch d := f.delimiter; d {
+	case "":
+	case "tab", `\t`:
+		opts = append(opts, ingest.WithDelimiter('\t'))
+	case "space", " ":
+		opts = append(opts, ingest.WithDelimiter(' '))
+	default:
+		if len(d) != 1 {
+			return nil, usageErrorf("--delimiter %q: want one character, tab or space", d)
+		}
+		opts = append(opts, ingest.WithDelimiter(rune(d[0])))
+	}
+	if changed("comment") {
+		opts = append(opts, ingest.WithComment(f.comment))
+	}
+	if len(f.header) > 0 {
+		opts = append(opts, ingest.WithHeader(f.header...))
+	}
+	if f.iagaBaseline {
+		opts = append(opts, ingest.WithIAGABaselineFrame(true))
+	}
+	if changed("decimal-comma") {
+		opts = append(opts, ingest.WithDecimalComma(f.decimalComma))
+	}
+	if changed("frame") {
+		fr, err := ingest.ParseFrame(f.frame)
+		if err != nil {
+			return nil, usageErrorf("--frame %q: want enu, ned or sensor", f.frame)
+		}
+		opts = append(opts, ingest.WithFrame(fr))
+	}
+	switch o := strings.TrimSpace(f.origin); o {
+	case "first", "":
+	case "mean":
+		opts = append(opts, ingest.WithOriginMean())
+	default:
+		parts := strings.Split(o, ",")
+		var v [3]float64
+		if len(parts) < 2 || len(parts) > 3 {
+			return nil, usageErrorf("--origin %q: want first, mean or LAT,LON[,HEIGHT]", o)
+		}
+		for i, p := range parts {
+			x, err := strconv.ParseFloat(strings.TrimSpace(p), 64)
+			if err != nil {
+				return nil, usageErrorf("--origin %q: %q is not a number", o, p)
+			}
+			v[i] = x
+		}
+		if v[0] < -90 || v[0] > 90 || v[1] < -180 || v[1] > 360 {
+			return nil, usageErrorf("--origin %q: latitude or longitude out of range", o)
+		}
+		opts = append(opts, ingest.WithOrigin(ingest.Geodetic{Lat: v[0], Lon: v[1], H: v[2]}))
+	}
+	if f.dropMissing {
+		opts = append(opts, ingest.WithAllowMissing(true))
+	}
+	return opts, nil
+}
+
+// fieldUnitGiven reports whether --unit named the unit of a field column,
+// which overrides the refusal of an implausible field magnitude.
+func (f *readFlags) fieldUnitGiven() bool {
+	for _, u := range append(append([]string(nil), f.units...), f.unitsOld...) {
+		for _, p := range strings.Split(u, ",") {
+			k, _, _ := strings.Cut(p, "=")
+			switch strings.ToLower(strings.TrimSpace(k)) {
+			case ingest.ColBx, ingest.ColBy, ingest.ColBz:
+				return true
+			}
+		}
+	}
+	return false
+}
+
+// ctxReader stops a reader at the end of the current batch once ctx is
+// done (Ctrl-C, SIGTERM); Err then reports the context's error.
+type ctxReader struct {
+	ingest.Reader
+	ctx context.Context
+	err error
+}
+
+func (c *ctxReader) Next() bool {
+	if err := c.ctx.Err(); err != nil {
+		c.err = err
+		return false
+	}
+	return c.Reader.Next()
+}
+
+func (c *ctxReader) Err() error {
+	if c.err != nil {
+		return c.err
+	}
+	return c.Reader.Err()
+}
+
+// readSamples reads a whole log like ingest.ReadSamples, stopping between
+// batches when ctx is done.
+func readSamples(ctx context.Context, path string, opts ...ingest.Option) (*ingest.Samples, error) {
+	if err := ctx.Err(); err != nil {
+		return nil, err
+	}
+	// Open reads the whole log first for --origin mean.
+	r, err := await(ctx, func() (ingest.Reader, error) { return ingest.Open(path, opts...) })
+	if err != nil {
+		return nil, err
+	}
+	defer r.Release()
+	s, err := ingest.Collect(&ctxReader{Reader: r, ctx: ctx})
+	if err != nil {
+		return nil, err
+	}
+	s.Source = path
+	return s, nil
+}
+
+// dropMissingRows removes the rows of s with a missing (NaN) time,
+// position or field value and returns how many it removed.
+func dropMissingRows(s *ingest.Samples) int {
+	n := s.Len()
+	keep := make([]bool, n)
+	kept := 0
+	for i := range n {
+		ok := !math.IsNaN(s.Time[i]) && !math.IsNaN(s.Bx[i]) && !math.IsNaN(s.By[i]) && !math.IsNaN(s.Bz[i])
+		if s.X != nil {
+			ok = ok && !math.IsNaN(s.X[i]) && !math.IsNaN(s.Y[i]) && !math.IsNaN(s.Z[i])
+		}
+		keep[i] = ok
+		if ok {
+			kept++
+		}
+	}
+	if kept == n {
+		return 0
+	}
+	filter := func(v []float64) []float64 {
+		if v == nil {
+			return nil
+		}
+		out := make([]float64, 0, kept)
+		for i, x := range v {
+			if keep[i] {
+				out = append(out, x)
+			}
+		}
+		return out
+	}
+	for _, p := range []*[]float64{&s.Time, &s.X, &s.Y, &s.Z, &s.Bx, &s.By, &s.Bz, &s.Temp, &s.Roll, &s.Pitch, &s.Yaw, &s.Qw, &s.Qx, &s.Qy, &s.Qz, &s.F} {
+		*p = filter(*p)
+	}
+	if s.Group != nil {
+		g := make([]string, 0, kept)
+		for i, x := range s.Group {
+			if keep[i] {
+				g = append(g, x)
+			}
+		}
+		s.Group = g
+	}
+	delete(s.Meta, "missing_rows")
+	return n - kept
+}
+
+// readLog reads one log with the flags' options, drops rows with missing
+// values when --drop-missing was given and checks the field's magnitude
+// (checkFieldUnits). It returns the samples and the warnings to pass on.
+func (f *readFlags) readLog(ctx context.Context, path string, opts []ingest.Option, checkUnits bool) (*ingest.Samples, []string, error) {
+	s, err := readSamples(ctx, path, opts...)
+	if err != nil {
+		return nil, nil, err
+	}
+	var warns []string
+	if f.dropMissing {
+		if n := dropMissingRows(s); n > 0 {
+			if s.Len() == 0 {
+				return nil, nil, fmt.Errorf("%s: every row has a missing value: no readings left", path)
+			}
+			warns = append(warns, fmt.Sprintf("%s: dropped %d of %d rows with a missing value (--drop-missing)", path, n, n+s.Len()))
+		}
+	}
+	if checkUnits {
+		w, err := checkFieldUnits(ctx, path, s.Bx, s.By, s.Bz, opts, f.fieldUnitGiven())
+		if err != nil {
+			return nil, nil, err
+		}
+		if w != "" {
+			warns = append(warns, w)
+		}
+	}
+	return s, warns, nil
+}
+
+// The Earth's main field at the surface is about 22 000 to 67 000 nT
+// (IGRF; the same band as ingest's inspection, 15 000 to 80 000 nT). A raw
+// three-axis log includes it, so its median |B| lies in this band unless
+// the unit of the field columns is wrong, or the log has had the Earth's
+// field removed (then it can be much smaller, and that is fine).
+const earthMinNT, earthMaxNT = 1.5e4, 8e4
+
+// Beyond these medians a log cannot be read in the unit given, whatever was
+// done to it: below 1 pT is under the noise of a single reading of any field
+// magnetometer (fluxgates are about 10 pT/sqrt(Hz), optically pumped ones
+// about 1 pT/sqrt(Hz)), and above 0.1 T is a hundred times the range of a
+// survey fluxgate (about +-1 mT) and two thousand times the Earth's field.
+// An Earth field written in tesla but read as nT (2e-5 to 7e-5) falls far
+// below; one in nT read as mT (2e10 and up) far above.
+const implausibleLowNT, implausibleHighNT = 1e-3, 1e8
+
+// checkFieldUnits looks at the median |B| of the readings (nT). Outside
+// the Earth's band it returns a warning, worded as "undercurrent inspect"
+// words it (ingest.Inspect reads the log a second time for that, only in
+// this case); beyond the implausible bounds it returns an error unless the
+// field's unit was given with --unit (unitGiven).
+func checkFieldUnits(ctx context.Context, path string, bx, by, bz []float64, opts []ingest.Option, unitGiven bool) (string, error) {
+	m, ok := medianMagnitude(bx, by, bz)
+	if !ok || (m >= earthMinNT && m <= earthMaxNT) {
+		return "", nil
+	}
+	w := ""
+	if in, err := inspectCtx(ctx, path, opts...); err == nil {
+		for _, s := range in.Warnings {
+			if strings.HasPrefix(s, "field:") {
+				w = cliWording(s)
+				break
+			}
+		}
+	} else if isInterrupt(err) {
+		return "", err
+	}
+	if w == "" {
+		w = fmt.Sprintf("field: median |B| is %.4g nT, far from an Earth field of about 20000-70000 nT: right for a log with the Earth's field removed; otherwise the field columns' unit is wrong (give it with --unit bx=U,by=U,bz=U)", m)
+	}
+	if !unitGiven && (m < implausibleLowNT || m > implausibleHighNT) {
+		limit := "below 1 pT"
+		if m > implausibleHighNT {
+			limit = "above 0.1 T"
+		}
+		return "", fmt.Errorf("%s: %s. Refused: a median |B| %s is impossible for a magnetometer log in the unit read; if that unit really is right, give it with --unit bx=U,by=U,bz=U to go on", path, strings.TrimPrefix(w, "field: "), limit)
+	}
+	return path + ": " + w, nil
+}
+
+// medianMagnitude returns the median |B| of the rows with all three
+// components (at most 1<<20 of them, spread over the log).
+func medianMagnitude(bx, by, bz []float64) (float64, bool) {
+	step := max(1, len(bx)/(1<<20))
+	var mags []float64
+	for i := 0; i < len(bx); i += step {
+		m := math.Sqrt(bx[i]*bx[i] + by[i]*by[i] + bz[i]*bz[i])
+		if !math.IsNaN(m) {
+			mags = append(mags, m)
+		}
+	}
+	if len(mags) == 0 {
+		return 0, false
+	}
+	sort.Float64s(mags)
+	return mags[len(mags)/2], true
+}
+
+// inspectCtx runs ingest.Inspect, which takes no context, and returns
+// early with the context's error when ctx is done (the inspection is left
+// to finish in the background; the process is about to exit).
+func inspectCtx(ctx context.Context, path string, opts ...ingest.Option) (*ingest.Inspection, error) {
+	return await(ctx, func() (*ingest.Inspection, error) { return ingest.Inspect(path, opts...) })
+}
+
+// cliWording turns ingest's suggestions ("try units bx=T", "try columns
+// lon=...") into the flags that give them.
+func cliWording(s string) string {
+	s = strings.ReplaceAll(s, "(try units ", "(try --unit ")
+	return strings.ReplaceAll(s, "(try columns ", "(try --column ")
+}
+
+// await runs f, which takes no context, in its own goroutine and returns
+// its result, or ctx's error as soon as ctx is done. An abandoned f runs
+// on in the background, its result unused: the command is about to exit
+// without writing anything, and f must not write output itself.
+func await[T any](ctx context.Context, f func() (T, error)) (T, error) {
+	if err := ctx.Err(); err != nil {
+		var zero T
+		return zero, err
+	}
+	type result struct {
+		v   T
+		err error
+	}
+	done := make(chan result, 1)
+	go func() {
+		v, err := f()
+		done <- result{v, err}
+	}()
+	select {
+	case r := <-done:
+		return r.v, r.err
+	case <-ctx.Done():
+		var zero T
+		return zero, ctx.Err()
+	}
+}
