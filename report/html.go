@@ -207,6 +207,11 @@ func pm(v, sigma float64) string {
 	return fix(v, dec) + " ± " + fix(sigma, dec)
 }
 
+// PlusMinus formats a value and its one-sigma uncertainty as the crew
+// report does (pm): the sigma to two significant digits, the value to the
+// same decimal place, plain decimals. Command-line tables use it too.
+func PlusMinus(v, sigma float64) string { return pm(v, sigma) }
+
 // sigText formats a sigma alone to two significant digits in plain
 // decimals (no exponent), or as a bound ("<0.001") when that would need
 // more than maxPMDecimals decimals.

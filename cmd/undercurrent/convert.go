@@ -106,6 +106,9 @@ Examples:
 			if cr.rows == 0 {
 				fmt.Fprintf(stderr, "warning: %s: no readings: %s has the columns and no rows\n", in, out)
 			}
+			for _, w := range ingest.Warnings(r) {
+				fmt.Fprintf(stderr, "warning: %s\n", w)
+			}
 			if w, err := checkFieldUnits(ctx, in, cr.bx, cr.by, cr.bz, opts, true); err == nil && w != "" {
 				fmt.Fprintf(stderr, "warning: %s\n", w)
 			}

@@ -512,7 +512,7 @@ func TestDemo(t *testing.T) {
 		t.Fatalf("demo's rerun command %q lacks settings", rerun)
 	}
 	summary := mustCLI(t, args[1:]...)
-	if !regexp.MustCompile(`± [0-9.e-]+ ∠-?[0-9]+° ± [0-9.e-]+°`).MatchString(summary) {
+	if !regexp.MustCompile(`± [0-9.]+ ∠-?[0-9.]+ ± [0-9.]+°`).MatchString(summary) {
 		t.Errorf("AC summary lacks the phase sigma:\n%s", summary)
 	}
 	if _, err := os.Stat(filepath.Join(dir+"-rerun", "results.json")); err != nil {

@@ -33,6 +33,12 @@ type readFlags struct {
 	decimalComma bool
 	// dropMissing drops rows with a missing value (addMissing).
 	dropMissing bool
+	// allowUnterminated reads an Arrow IPC stream file that stops without
+	// its end-of-stream marker (a copy cut short), with a warning.
+	allowUnterminated bool
+	// timeOrder is how time must run through a log: ordered, per-group
+	// or any.
+	timeOrder string
 }
 
 // fieldUnits lists the field units ingest accepts, for help texts.
@@ -51,6 +57,8 @@ func (f *readFlags) add(fs *pflag.FlagSet) {
 	fs.StringVar(&f.frame, "frame", "enu", "axes of the field and position columns: enu, ned or sensor")
 	fs.StringVar(&f.origin, "origin", "first", "origin for WGS84 positions: first, mean or LAT,LON[,HEIGHT]")
 	fs.BoolVar(&f.decimalComma, "decimal-comma", false, "CSV numbers write decimals with a comma (12,5); default: detected from the first data row when the delimiter is not a comma; --decimal-comma=false refuses them")
+	fs.BoolVar(&f.allowUnterminated, "allow-unterminated", false, "read an Arrow IPC stream file that stops without its end-of-stream marker (a copy cut short or a writer killed mid-run): the rows before the cut, with a warning")
+	fs.StringVar(&f.timeOrder, "time-order", "ordered", "how time must run through a log: ordered, per-group (within each value of the group column: sensors or traverses logged one after another) or any")
 	fs.BoolVar(&f.iagaBaseline, "iaga-baseline-frame", false, "leave IAGA-2002 variation data (H D Z, H E Z; a base-station log too) in the observatory's baseline frame instead of turning them to geographic north by the header's DECBAS")
 }
 
@@ -130,6 +138,16 @@ func (f *readFlags) options(fs *pflag.FlagSet) ([]ingest.Option, error) {
 	if f.dropMissing {
 		opts = append(opts, ingest.WithAllowMissing(true))
 	}
+	if f.allowUnterminated {
+		opts = append(opts, ingest.WithAllowUnterminatedStream(true))
+	}
+	if changed("time-order") {
+		o, err := ingest.ParseTimeOrder(f.timeOrder)
+		if err != nil {
+			return nil, usageErrorf("--time-order %q: want ordered, per-group or any", f.timeOrder)
+		}
+		opts = append(opts, ingest.WithTimeOrder(o))
+	}
 	return opts, nil
 }
 
@@ -187,6 +205,7 @@ func readSamples(ctx context.Context, path string, opts ...ingest.Option) (*inge
 	if err != nil {
 		return nil, err
 	}
+	s.Warnings = ingest.Warnings(r) // the wrapper hides them from Collect
 	s.Source = path
 	return s, nil
 }
@@ -246,7 +265,9 @@ func (f *readFlags) readLog(ctx context.Context, path string, opts []ingest.Opti
 	if err != nil {
 		return nil, nil, err
 	}
-	var warns []string
+	// The reader's own warnings (an unterminated stream read anyway,
+	// same-named columns, an IAGA-2002 file without DECBAS).
+	warns := append([]string(nil), s.Warnings...)
 	if f.dropMissing {
 		if n := dropMissingRows(s); n > 0 {
 			if s.Len() == 0 {

@@ -343,6 +343,7 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (*survey, 
 			return nil, err
 		}
 		doc.Inputs = append(doc.Inputs, fileInput("base", o.base, base.Len()))
+		sv.warnings = append(sv.warnings, base.Warnings...)
 	}
 	opts := append([]ingest.Option(nil), o.readOpts...)
 	if o.groupBy != "" && o.groupBy != ingest.ColGroup {
@@ -754,14 +755,15 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 			if i > 0 {
 				k, ch = "", ""
 			}
-			cur := fmt.Sprintf("%.3g ± %.2g", s.Current, s.CurrentSigma)
+			// Values to the decimal place of their sigmas, as in the report.
+			cur := report.PlusMinus(s.Current, s.CurrentSigma)
 			switch {
 			case s.Kind == report.KindDipole:
 				cur = "object"
 			case s.Phase != nil && s.PhaseSigma != nil:
-				cur = fmt.Sprintf("%.3g ± %.2g ∠%.0f° ± %.2g°", s.Current, s.CurrentSigma, *s.Phase, *s.PhaseSigma)
+				cur += " ∠" + report.PlusMinus(*s.Phase, *s.PhaseSigma) + "°"
 			case s.Phase != nil:
-				cur = fmt.Sprintf("%.3g ± %.2g ∠%.0f°", s.Current, s.CurrentSigma, *s.Phase)
+				cur += fmt.Sprintf(" ∠%.0f°", *s.Phase)
 			}
 			note := ""
 			if i == 0 && g.Problem != "" {
@@ -777,7 +779,7 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 				}
 				note = fmt.Sprintf(" %9s", c) + note
 			}
-			fmt.Fprintf(w, "%-8s %10s %*s %16s %9.3g%s\n", k, ch, cw, cur, fmt.Sprintf("%.2f ± %.2g", s.Depth, s.DepthSigma), g.RMS, note)
+			fmt.Fprintf(w, "%-8s %10s %*s %16s %9.3g%s\n", k, ch, cw, cur, report.PlusMinus(s.Depth, s.DepthSigma), g.RMS, note)
 		}
 	}
 	if len(doc.Findings) == 0 {

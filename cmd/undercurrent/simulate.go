@@ -30,7 +30,9 @@ its drift; see testdata/demo/fenwick-lane.toml for a commented example) and
 writes the log a sensor would have recorded. The output format follows the
 extension of LOG: .csv, .arrow (Arrow IPC file), .arrows (Arrow IPC stream)
 or .parquet, in any case. Each survey line gets its own value in the group
-column. The directory of each output file must exist.
+column; with pattern = "fixed" each fixed sensor's rows carry its name and
+its readings in its own axes: a log for the replay command. The directory of
+each output file must exist.
 
 Use it to plan a survey (is this current detectable at this depth with this
 sensor?) and to check the locate command against known answers. It prints
@@ -40,7 +42,8 @@ sensor noise.
 Examples:
   undercurrent simulate testdata/demo/fenwick-lane.toml -o fenwick-lane.csv
   undercurrent simulate testdata/scenarios/kestrel-moor-step.toml -o kestrel.parquet --base-log base.csv
-  undercurrent simulate --seed 7 testdata/scenarios/single-line.toml -o line.arrow --truth line-truth.csv`,
+  undercurrent simulate --seed 7 testdata/scenarios/single-line.toml -o line.arrow --truth line-truth.csv
+  undercurrent simulate testdata/scenarios/harrow-fen-fixed.toml -o recorded.arrows`,
 		setFlags: func(fs *pflag.FlagSet) {
 			fs.StringVarP(&out, "output", "o", "", "write the log to `LOG` (.csv, .arrow, .arrows or .parquet)")
 			fs.StringVar(&baseOut, "base-log", "", "also write the scenario's base-station log to `FILE`")
@@ -98,6 +101,8 @@ Examples:
 			switch n := len(sc.Lines()); {
 			case sc.Survey.Pattern == "spin":
 				fmt.Fprintf(stdout, "wrote %s: %d readings of a sensor turned in place over %s\n", out, s.Len(), span(s.Time))
+			case sc.Survey.Pattern == "fixed":
+				fmt.Fprintf(stdout, "wrote %s: %d readings of %d fixed sensors over %s\n", out, s.Len(), n, span(s.Time))
 			case n == 1:
 				fmt.Fprintf(stdout, "wrote %s: %d readings on 1 survey line over %s\n", out, s.Len(), span(s.Time))
 			default:
