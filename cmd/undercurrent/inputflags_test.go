@@ -119,13 +119,7 @@ func TestLocateFrameOriginDelimiter(t *testing.T) {
 	if err := os.WriteFile(geoPath, []byte(geo.String()), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	decode := func(args ...string) resultDoc {
-		var doc resultDoc
-		if err := json.Unmarshal([]byte(mustCLI(t, append([]string{"locate", "--json", "--group-by", "group"}, args...)...)), &doc); err != nil {
-			t.Fatal(err)
-		}
-		return doc
-	}
+	decode := func(args ...string) resultDoc { return locateGrouped(t, args...) }
 	want := decode(canon)
 	for _, tc := range []struct {
 		name string

@@ -435,13 +435,7 @@ func TestLocateColumnsAndUnits(t *testing.T) {
 	if err := os.WriteFile(other, []byte(b.String()), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	decode := func(args ...string) resultDoc {
-		var doc resultDoc
-		if err := json.Unmarshal([]byte(mustCLI(t, append([]string{"locate", "--json", "--group-by", "group"}, args...)...)), &doc); err != nil {
-			t.Fatal(err)
-		}
-		return doc
-	}
+	decode := func(args ...string) resultDoc { return locateGrouped(t, args...) }
 	want := decode(canon)
 	got := decode("--column", "time=t", "--column", "x=easting", "--unit", "bx=uT,by=uT,bz=uT", other)
 	for i, g := range got.Groups {
@@ -451,4 +445,15 @@ func TestLocateColumnsAndUnits(t *testing.T) {
 			t.Errorf("%s: %.9g A at %.9g m, want %.9g A at %.9g m", g.Key, a.Current, a.Depth, w.Current, w.Depth)
 		}
 	}
+}
+
+// locateGrouped runs locate --json --group-by group with args and decodes
+// its JSON.
+func locateGrouped(t *testing.T, args ...string) resultDoc {
+	t.Helper()
+	var doc resultDoc
+	if err := json.Unmarshal([]byte(mustCLI(t, append([]string{"locate", "--json", "--group-by", "group"}, args...)...)), &doc); err != nil {
+		t.Fatal(err)
+	}
+	return doc
 }
