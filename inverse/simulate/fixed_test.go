@@ -227,9 +227,7 @@ func TestFixedErrors(t *testing.T) {
 	if _, err := Parse([]byte(fixedPair), "s.toml"); err != nil {
 		t.Fatalf("good scenario: %v", err)
 	}
-	cases := []struct {
-		name, old, new, want string
-	}{
+	cases := []parseCase{
 		{"no sensors", "[[survey.sensor]]\nname = \"fl-w2\"\nposition = [-1.5, 0.0, 0.3]\n[[survey.sensor]]\nname = \"fl-n1\"\nposition = [0.0, 4.0, 0.3]\norientation = [90.0, 0.0, 0.0]\n[[survey.sensor]]\nname = \"tipped_3\"\nposition = [0.7, -2.0, 0.5]\norientation = [-30.0, 20.0, -40.0]\n", "",
 			`s.toml:9:11: pattern "fixed" needs at least one [[survey.sensor]] table`},
 		{"duplicate name", `name = "tipped_3"`, `name = "fl-w2"`,
@@ -255,21 +253,7 @@ func TestFixedErrors(t *testing.T) {
 		{"change before the start", "change_at_s = 0.5", "change_at_s = -2", "change time -2 s must be a number >= 0"},
 		{"unknown pattern", `pattern = "fixed"`, `pattern = "fixd"`, `want "traverses", "grid", "spin" or "fixed"`},
 	}
-	for _, tc := range cases {
-		t.Run(tc.name, func(t *testing.T) {
-			text := strings.Replace(fixedPair, tc.old, tc.new, 1)
-			if text == fixedPair {
-				t.Fatalf("test case did not change the scenario")
-			}
-			_, err := Parse([]byte(text), "s.toml")
-			if err == nil {
-				t.Fatalf("no error, want %q", tc.want)
-			}
-			if !strings.HasPrefix(err.Error(), "simulate: s.toml") || !strings.Contains(err.Error(), tc.want) {
-				t.Errorf("error %q, want it to start with \"simulate: s.toml\" and contain %q", err, tc.want)
-			}
-		})
-	}
+	checkParseErrors(t, fixedPair, cases)
 	// A dipole has no current to change.
 	dip := fixedPair + `
 [[conductor]]

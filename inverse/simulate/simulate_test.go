@@ -531,9 +531,7 @@ current_a = 10
 	if _, err := Parse([]byte(good), "s.toml"); err != nil {
 		t.Fatalf("good scenario: %v", err)
 	}
-	cases := []struct {
-		name, old, new, want string
-	}{
+	cases := []parseCase{
 		{"syntax", "count = 2", "count = = 2", "s.toml:5:"},
 		{"unknown key", "spacing_m = 5", "spacing = 5", `s.toml:6:11: unknown key "survey.spacing"`},
 		{"wrong type", "count = 2", `count = "two"`, "s.toml:5:"},
@@ -551,21 +549,7 @@ current_a = 10
 		{"polyline currents", "kind = \"line\"\npoint = [0, 0, -1]\ndirection = [1, 0, 0]\ncurrent_a = 10",
 			"kind = \"polyline\"\nvertices = [[0,0,-1],[5,0,-1],[9,0,-1]]\ncurrents_a = [1, 2, 3]", "3 currents for 2 segments"},
 	}
-	for _, tc := range cases {
-		t.Run(tc.name, func(t *testing.T) {
-			text := strings.Replace(good, tc.old, tc.new, 1)
-			if text == good {
-				t.Fatalf("test case did not change the scenario")
-			}
-			_, err := Parse([]byte(text), "s.toml")
-			if err == nil {
-				t.Fatalf("no error, want %q", tc.want)
-			}
-			if !strings.HasPrefix(err.Error(), "simulate: s.toml") || !strings.Contains(err.Error(), tc.want) {
-				t.Errorf("error %q, want it to start with \"simulate: s.toml\" and contain %q", err, tc.want)
-			}
-		})
-	}
+	checkParseErrors(t, good, cases)
 	if _, err := Load(filepath.Join(t.TempDir(), "missing.toml")); err == nil || !strings.Contains(err.Error(), "missing.toml") {
 		t.Errorf("Load of a missing file: %v", err)
 	}
@@ -619,5 +603,30 @@ func TestDemoBundled(t *testing.T) {
 	}
 	if sc.Name != "fenwick-lane" || sc.Source != DemoPath {
 		t.Errorf("Demo() = %q from %q", sc.Name, sc.Source)
+	}
+}
+
+// parseCase edits a scenario (the first old becomes new) and names the
+// error Parse must give for it.
+type parseCase struct{ name, old, new, want string }
+
+// checkParseErrors parses base with each case's edit and checks the error
+// names the file and contains the case's text.
+func checkParseErrors(t *testing.T, base string, cases []parseCase) {
+	t.Helper()
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			text := strings.Replace(base, tc.old, tc.new, 1)
+			if text == base {
+				t.Fatalf("test case did not change the scenario")
+			}
+			_, err := Parse([]byte(text), "s.toml")
+			if err == nil {
+				t.Fatalf("no error, want %q", tc.want)
+			}
+			if !strings.HasPrefix(err.Error(), "simulate: s.toml") || !strings.Contains(err.Error(), tc.want) {
+				t.Errorf("error %q, want it to start with \"simulate: s.toml\" and contain %q", err, tc.want)
+			}
+		})
 	}
 }
