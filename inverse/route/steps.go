@@ -180,8 +180,25 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64) []F
 			// disabled every raw difference is reported, as asked.)
 			continue
 		}
+		// Whether current leaves or joins depends on the way it flows, not
+		// on the way the crew walked: a DC current is signed along
+		// increasing chainage, so one flowing the other way (negative
+		// levels) is read from the far end. An AC magnitude carries no
+		// direction: it is read from the start of the route, and the
+		// message says so.
+		first, second := a, b
+		up, down := math.Abs(pl.before), math.Abs(pl.after) // upstream, downstream levels
+		along, fed := "", ""
+		switch {
+		case a.AC:
+			fed = ", if it is fed from the start of the route (the reverse if fed from the far end)"
+		case pl.before+pl.after < 0:
+			first, second = b, a
+			up, down = down, up
+			along = ", in the direction the current flows (toward decreasing chainage)"
+		}
 		verb, why := "falls", "current leaving the conductor there"
-		if math.Abs(pl.after) > math.Abs(pl.before) {
+		if down > up {
 			verb, why = "rises", "current joining the conductor there (a bond, a tee or another source)"
 		}
 		// Two significant digits of the sigma, the values to match.
@@ -189,8 +206,8 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64) []F
 		if sigma > 0 {
 			dec = max(0, 1-int(math.Floor(math.Log10(sigma))))
 		}
-		msg := fmt.Sprintf("current %s by %.*f ± %.*f A between %s (chainage %.1f m) and %s (%.1f m): %s",
-			verb, dec, math.Abs(size), dec, sigma, label(a), a.Chainage, label(b), b.Chainage, why)
+		msg := fmt.Sprintf("current %s by %.*f ± %.*f A between %s (chainage %.1f m) and %s (%.1f m)%s: %s%s",
+			verb, dec, math.Abs(size), dec, sigma, label(first), first.Chainage, label(second), second.Chainage, along, why, fed)
 		f := Finding{
 			Kind:     KindCurrentStep,
 			Severity: SeverityWarning,

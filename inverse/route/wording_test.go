@@ -2,6 +2,7 @@ package route
 
 import (
 	"math"
+	"slices"
 	"strings"
 	"testing"
 )
@@ -361,5 +362,51 @@ func TestStepSaysBetweenOnce(t *testing.T) {
 		if !strings.Contains(m, tc.want) || strings.Count(head, "between") != 1 {
 			t.Errorf("step %g A: message %q, want one \"between\" before %q", tc.step, m, tc.want)
 		}
+	}
+}
+
+// TestStepReadAlongTheFlow: whether DC current leaves or joins at a step
+// follows from the way it flows (Kirchhoff's current law: what flows past
+// the step downstream is what flowed past upstream, less what left), not
+// from the order the traverses were walked. The leak of spur, walked from
+// the far end, is still current leaving; the same levels with the current
+// flowing the other way are current joining. AC magnitudes say which end
+// they are read from.
+func TestStepReadAlongTheFlow(t *testing.T) {
+	message := func(st []Station) string {
+		t.Helper()
+		r, err := Build(st, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		s := findings(r, KindCurrentStep)
+		if len(s) != 1 {
+			t.Fatalf("%d steps, want 1", len(s))
+		}
+		return s[0].Message
+	}
+	leaving, joining := "current leaving the conductor there", "current joining the conductor there"
+	walked := spur(1, 1, 15)
+	if m := message(walked); !strings.Contains(m, leaving) || strings.Contains(m, "direction the current flows") {
+		t.Errorf("the leak walked along the flow: %q", m)
+	}
+	back := slices.Clone(walked)
+	slices.Reverse(back)
+	if m := message(back); !strings.Contains(m, leaving) || !strings.Contains(m, "in the direction the current flows (toward decreasing chainage)") {
+		t.Errorf("the leak walked from the far end: %q", m)
+	}
+	against := slices.Clone(walked)
+	for i := range against {
+		against[i].Current = -against[i].Current
+	}
+	if m := message(against); !strings.Contains(m, joining) {
+		t.Errorf("the same levels flowing toward decreasing chainage: %q", m)
+	}
+	ac := slices.Clone(walked)
+	for i := range ac {
+		ac[i].AC = true
+	}
+	if m := message(ac); !strings.Contains(m, leaving) || !strings.Contains(m, "if it is fed from the start of the route") {
+		t.Errorf("AC: %q", m)
 	}
 }
