@@ -47,7 +47,7 @@ func steps(ps []Placed, set *Settings, tau, widen float64) (out []Finding) {
 			note = fmt.Sprintf(" (widened %.2g times for the few stations it is estimated from)", widen)
 		}
 		for i := range out {
-			out[i].Message += fmt.Sprintf("; sigmas include a between-station scatter of %.2g A beyond the fits' own%s", tau, note)
+			out[i].Message += fmt.Sprintf("; sigmas include an excess scatter between stations of %.2g A, beyond what the fits' own sigmas explain%s", tau, note)
 			out[i].Values = append(out[i].Values, Value{Name: "between-station scatter", Value: tau, Unit: "A"})
 		}
 	}()
