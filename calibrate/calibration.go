@@ -48,7 +48,11 @@ type Calibration struct {
 	After  *Spread `json:"after,omitempty"`
 	// Coverage is the orientation coverage of the spin log (ellipsoid).
 	Coverage *Coverage `json:"coverage,omitempty"`
-	Notes    []string  `json:"notes,omitempty"`
+	// Sensor names the sensor the calibration was made for, when the
+	// calibration log named it (see SensorName); Check compares it with
+	// the sensor of the log a calibration is applied to.
+	Sensor string   `json:"sensor,omitempty"`
+	Notes  []string `json:"notes,omitempty"`
 }
 
 // Input records one file a calibration was made from.
@@ -179,6 +183,16 @@ func (c *Calibration) Validate() error {
 			}
 		}
 	}
+	if r := c.Reference; math.IsNaN(r) || math.IsInf(r, 0) || r < 0 {
+		return fmt.Errorf("reference_nt is %g, want a positive field magnitude in nT (or no reference_nt)", r)
+	}
+	if c.OffsetSigma != nil {
+		for k, v := range c.OffsetSigma {
+			if math.IsNaN(v) || math.IsInf(v, 0) || v < 0 {
+				return fmt.Errorf("offset_sigma_nt[%d] is %g, want a standard error of 0 nT or more", k, v)
+			}
+		}
+	}
 	m := c.Matrix
 	det := m[0][0]*(m[1][1]*m[2][2]-m[1][2]*m[2][1]) - m[0][1]*(m[1][0]*m[2][2]-m[1][2]*m[2][0]) + m[0][2]*(m[1][0]*m[2][1]-m[1][1]*m[2][0])
 	if math.Abs(det) < 1e-6 {
@@ -204,8 +218,11 @@ func (c *Calibration) Save(path string) error {
 }
 
 // Load reads a calibration file written by Save. It rejects unknown
-// versions, unknown fields and unusable corrections with an error naming
-// the file (and line and column for JSON errors).
+// versions, unknown fields, missing fields (method, created, offset_nt,
+// matrix), lists of the wrong length (offset_nt and offset_sigma_nt hold
+// three numbers, matrix three rows of three) and unusable corrections
+// with an error naming the file and the field (and line and column for
+// JSON errors).
 func Load(path string) (*Calibration, error) {
 	data, err := os.ReadFile(path)
 	if err != nil {
@@ -223,17 +240,86 @@ func Load(path string) (*Calibration, error) {
 	if *probe.Version != Version {
 		return nil, fmt.Errorf("calibrate: %s: calibration file version %d is not supported (this build reads version %d)", path, *probe.Version, Version)
 	}
+	if err := checkShape(data); err != nil {
+		return nil, fmt.Errorf("calibrate: %s: %w", path, err)
+	}
 	dec := json.NewDecoder(bytes.NewReader(data))
 	dec.DisallowUnknownFields()
 	var c Calibration
 	if err := dec.Decode(&c); err != nil {
 		return nil, jsonError(path, data, err)
 	}
-
+	if c.Created.IsZero() {
+		return nil, fmt.Errorf("calibrate: %s: created is 0001-01-01T00:00:00Z, the zero time: want the date the calibration was made", path)
+	}
 	if err := c.Validate(); err != nil {
 		return nil, fmt.Errorf("calibrate: %s: %w", path, err)
 	}
 	return &c, nil
+}
+
+// checkShape checks what decoding into fixed-size arrays would let pass
+// silently: a missing or short offset_nt (its missing components would
+// read as 0), extra elements (ignored), a matrix that is not 3x3 and a
+// missing created date. A JSON syntax error is left to the decoder, which
+// locates it.
+func checkShape(data []byte) error {
+	var raw map[string]json.RawMessage
+	if err := json.Unmarshal(data, &raw); err != nil {
+		return nil
+	}
+	present := func(k string) bool {
+		v, ok := raw[k]
+		return ok && !bytes.Equal(bytes.TrimSpace(v), []byte("null"))
+	}
+	for _, k := range []string{"method", "created", "offset_nt", "matrix"} {
+		if !present(k) {
+			return fmt.Errorf("no %q field: a calibration file has version, method, created, offset_nt and matrix", k)
+		}
+	}
+	vector := func(k, what string) error {
+		var v []json.RawMessage
+		if err := json.Unmarshal(raw[k], &v); err != nil {
+			return fmt.Errorf("%s is not a list of three numbers (%s)", k, what)
+		}
+		if len(v) != 3 {
+			return fmt.Errorf("%s has %s, want 3 (%s)", k, values(len(v)), what)
+		}
+		return nil
+	}
+	if err := vector("offset_nt", "the x, y and z offsets in nT"); err != nil {
+		return err
+	}
+	if present("offset_sigma_nt") {
+		if err := vector("offset_sigma_nt", "the standard errors of the x, y and z offsets in nT"); err != nil {
+			return err
+		}
+	}
+	var rows []json.RawMessage
+	if err := json.Unmarshal(raw["matrix"], &rows); err != nil {
+		return fmt.Errorf("matrix is not a list of rows: want 3x3, three rows of three numbers")
+	}
+	if len(rows) != 3 {
+		return fmt.Errorf("matrix has %d rows, want 3x3 (three rows of three numbers)", len(rows))
+	}
+	for i, r := range rows {
+		var v []json.RawMessage
+		if err := json.Unmarshal(r, &v); err != nil {
+			return fmt.Errorf("matrix row %d is not a list of numbers: want 3x3 (three rows of three numbers)", i+1)
+		}
+		if len(v) != 3 {
+			return fmt.Errorf("matrix row %d has %s, want 3x3 (three rows of three numbers)", i+1, values(len(v)))
+		}
+	}
+	return nil
+}
+
+// values says "1 value", "2 values".
+func values(n int) string {
+	if n == 1 {
+		return "1 value"
+	}
+	return fmt.Sprintf("%d values", n)
 }
 
 // jsonError adds the file name and, when the error carries an offset, the

@@ -69,14 +69,40 @@ func TestCalibrationRoundTripAndApply(t *testing.T) {
 
 func TestLoadRejects(t *testing.T) {
 	dir := t.TempDir()
+	// good is a complete file; each case below spoils one field of it.
+	const good = `"version": 1, "method": "zero", "created": "2026-11-30T09:12:00Z", "offset_nt": [1, 2, 3], "matrix": [[1,0,0],[0,1,0],[0,0,1]]`
+	spoil := func(old, new string) string {
+		if !strings.Contains(good, old) {
+			t.Fatalf("%q is not in the good file", old)
+		}
+		return "{" + strings.Replace(good, old, new, 1) + "}"
+	}
 	for _, tc := range []struct{ name, body, want string }{
 		{"future version", `{"version": 2, "method": "ellipsoid"}`, "version 2 is not supported"},
 		{"no version", `{"method": "zero"}`, `no "version"`},
 		{"syntax", "{\"version\": 1,\n \"method\": \"zero\",\n \"offset_nt\": [1, 2,, 3]}", ":3:"},
-		{"unknown field", `{"version": 1, "method": "zero", "offest_nt": [1,2,3], "matrix": [[1,0,0],[0,1,0],[0,0,1]]}`, "offest_nt"},
-		{"singular", `{"version": 1, "method": "zero", "matrix": [[1,0,0],[0,0,0],[0,0,1]]}`, "singular"},
-		{"method", `{"version": 1, "method": "guess", "matrix": [[1,0,0],[0,1,0],[0,0,1]]}`, `"guess"`},
-		{"trailing", "{\"version\": 1, \"method\": \"zero\", \"matrix\": [[1,0,0],[0,1,0],[0,0,1]]}\n{}", ":2:2: invalid character"},
+		{"unknown field", spoil(`"offset_nt"`, `"offest_nt": [1,2,3], "offset_nt"`), "offest_nt"},
+		{"singular", spoil(`[[1,0,0],[0,1,0],[0,0,1]]`, `[[1,0,0],[0,0,0],[0,0,1]]`), "singular"},
+		{"method", spoil(`"zero"`, `"guess"`), `"guess"`},
+		{"trailing", "{" + good + "}\n{}", ":2:2: invalid character"},
+		// Fixed-size arrays would take these silently: a short offset
+		// padded with zeros, extra values dropped, a 2x2 matrix padded
+		// (and then called singular), a missing date read as year 1.
+		{"short offset", spoil(`[1, 2, 3]`, `[1, 2]`), "offset_nt has 2 values, want 3"},
+		{"long offset", spoil(`[1, 2, 3]`, `[1, 2, 3, 4]`), "offset_nt has 4 values, want 3"},
+		{"offset not a list", spoil(`[1, 2, 3]`, `5`), "offset_nt is not a list of three numbers"},
+		{"no offset", spoil(`"offset_nt": [1, 2, 3], `, ``), `no "offset_nt" field`},
+		{"null offset", spoil(`[1, 2, 3]`, `null`), `no "offset_nt" field`},
+		{"short sigma", spoil(`[1, 2, 3]`, `[1, 2, 3], "offset_sigma_nt": [0.1]`), "offset_sigma_nt has 1 value, want 3"},
+		{"negative sigma", spoil(`[1, 2, 3]`, `[1, 2, 3], "offset_sigma_nt": [0.1, -1, 0.1]`), "offset_sigma_nt[1] is -1"},
+		{"2x2 matrix", spoil(`[[1,0,0],[0,1,0],[0,0,1]]`, `[[1,0],[0,1]]`), "matrix has 2 rows, want 3x3"},
+		{"short matrix row", spoil(`[[1,0,0],[0,1,0],[0,0,1]]`, `[[1,0,0],[0,1],[0,0,1]]`), "matrix row 2 has 2 values, want 3x3"},
+		{"long matrix row", spoil(`[[1,0,0],[0,1,0],[0,0,1]]`, `[[1,0,0],[0,1,0],[0,0,1,0]]`), "matrix row 3 has 4 values, want 3x3"},
+		{"no matrix", spoil(`, "matrix": [[1,0,0],[0,1,0],[0,0,1]]`, ``), `no "matrix" field`},
+		{"no created", spoil(`"created": "2026-11-30T09:12:00Z", `, ``), `no "created" field`},
+		{"zero created", spoil(`2026-11-30T09:12:00Z`, `0001-01-01T00:00:00Z`), "created is 0001-01-01T00:00:00Z, the zero time"},
+		{"no method", spoil(`"method": "zero", `, ``), `no "method" field`},
+		{"negative reference", spoil(`"zero"`, `"zero", "reference_nt": -49000`), "reference_nt is -49000"},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			p := filepath.Join(dir, "cal.json")
@@ -88,6 +114,18 @@ func TestLoadRejects(t *testing.T) {
 				t.Errorf("err = %v, want one naming cal.json and %q", err, tc.want)
 			}
 		})
+	}
+	// The good file itself loads, with its date.
+	p := filepath.Join(dir, "good.json")
+	if err := os.WriteFile(p, []byte("{"+good+"}"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	c, err := Load(p)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if c.Offset != [3]float64{1, 2, 3} || !strings.Contains(c.Summary(), "zero calibration of 2026-11-30") {
+		t.Errorf("good file: offset %v, summary %q", c.Offset, c.Summary())
 	}
 }
 
@@ -144,6 +182,86 @@ func TestFlipAndZeroOffsets(t *testing.T) {
 	}
 	if _, err := FlipOffset(r0, nil, 2); err == nil {
 		t.Error("empty 180 degree log: want an error")
+	}
+}
+
+// flipLogs returns 200 readings of the field b plus the offset off with
+// the sensor at 0 degrees and turned 180 degrees about axis turn (the two
+// other components change sign), with 1 nT noise; tilt adds d nT to the
+// turn axis in the second log, as a turn axis slightly out of line does.
+func flipLogs(rng *rand.Rand, b, off [3]float64, turn int, d float64) (r0, r180 [][3]float64) {
+	for i := 0; i < 200; i++ {
+		var a, c [3]float64
+		for k := 0; k < 3; k++ {
+			sign := -1.0
+			if k == turn {
+				sign = 1
+			}
+			a[k] = b[k] + off[k] + rng.NormFloat64()
+			c[k] = sign*b[k] + off[k] + rng.NormFloat64()
+		}
+		c[turn] += d
+		r0, r180 = append(r0, a), append(r180, c)
+	}
+	return r0, r180
+}
+
+// TestFlipChecks: logs that a turn of 180 degrees about the given axis
+// cannot produce are refused with a message saying what is wrong; true
+// flip logs pass, also where one axis across the turn axis reads almost no
+// field. The field is a mid-latitude one (|B| about 50 000 nT, inclination
+// about 69 degrees, as over Britain in the IGRF) in sensor axes.
+func TestFlipChecks(t *testing.T) {
+	off := [3]float64{310, -240, 180}
+	same := func(r [][3]float64) [][3]float64 { return r }
+	for _, tc := range []struct {
+		name  string
+		b     [3]float64
+		turn  int // the axis the sensor was turned about
+		given int // the axis FlipOffset is told
+		tilt  float64
+		edit  func([][3]float64) [][3]float64 // applied to r180 (nil: none)
+		want  string                          // "" for a good pair
+	}{
+		{"good flip about z", [3]float64{18000, 5000, -46000}, 2, 2, 0, nil, ""},
+		{"good flip about x", [3]float64{-46000, 18000, 5000}, 0, 0, 0, nil, ""},
+		{"y across the turn reads almost nothing", [3]float64{18500, 40, -46000}, 2, 2, 0, nil, ""},
+		{"turn axis 1 degree out of line", [3]float64{18000, 5000, -46000}, 2, 2, 2 * 0.01745 * 49700, nil, ""},
+		{"large platform offset", [3]float64{18000, 5000, -46000}, 2, 2, 0, nil, ""},
+		{"one log twice", [3]float64{18000, 5000, -46000}, 2, 2, 0, same, "the two logs read the same on x and y"},
+		{"turned about z, told x", [3]float64{18000, 5000, -46000}, 2, 0, 0, nil, "the flip axis x reads 36000 nT differently in the two logs (means 18310 and -17690 nT), where a turn about x leaves it unchanged: was the sensor turned about x, with that axis held in line? (z reads the same in both: a turn about z?)"},
+		{"turned about z, told x, x reads little", [3]float64{-420, 17360, -46720}, 2, 0, 0, nil, "the offset found on z, -46540 nT, is 94% of the 49762 nT field"},
+		{"turn axis 3 degrees out of line", [3]float64{18000, 5000, -46000}, 2, 2, 2 * 0.0524 * 49700, nil, "the flip axis z reads 520"},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			rng := rand.New(rand.NewPCG(51, 52))
+			o := off
+			if strings.HasPrefix(tc.name, "large") {
+				o = [3]float64{8000, -6000, 3000}
+			}
+			r0, r180 := flipLogs(rng, tc.b, o, tc.turn, tc.tilt)
+			if tc.edit != nil {
+				r180 = tc.edit(r0)
+			}
+			res, err := FlipOffset(r0, r180, tc.given)
+			if tc.want == "" {
+				if err != nil {
+					t.Fatal(err)
+				}
+				for k := 0; k < 3; k++ {
+					if k != tc.turn && math.Abs(res.Offset[k]-o[k]) > 1 {
+						t.Errorf("axis %d: offset %.2f, want %.0f", k, res.Offset[k], o[k])
+					}
+				}
+				return
+			}
+			if err == nil {
+				t.Fatalf("offset %v: want an error containing %q", res.Offset, tc.want)
+			}
+			if !strings.Contains(err.Error(), tc.want) {
+				t.Errorf("error %q lacks %q", err, tc.want)
+			}
+		})
 	}
 }
 

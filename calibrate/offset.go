@@ -1,6 +1,7 @@
 package calibrate
 
 import (
+	"errors"
 	"fmt"
 	"math"
 )
@@ -18,6 +19,27 @@ type OffsetResult struct {
 	N [2]int
 }
 
+// Tolerances of the flip method's sanity checks, as fractions of the field
+// magnitude F seen by the sensor (the larger of |mean(r0)| and
+// |mean(r180)|).
+const (
+	// FlipAxisTolerance bounds how differently the axis turned about may
+	// read in the two logs. A turn axis misaligned by δ moves that axis
+	// by up to 2δ·F, and the field drifts by tens of nT between the logs:
+	// 5% allows δ up to about 1.4°, while turning about another axis
+	// changes it by twice its field component, typically 10 000 nT or more.
+	FlipAxisTolerance = 0.05
+	// FlipSameTolerance is the difference below which the axes across the
+	// turn axis count as reading the same in both logs: a flip changes
+	// their sign, so they differ by twice the horizontal field (for a turn
+	// about the vertical), some 40 000 nT outside the polar regions.
+	FlipSameTolerance = 0.02
+	// FlipMaxOffset is the largest offset, as a fraction of F, taken as a
+	// sensor offset. An axis that was not flipped yields its field
+	// component plus the offset, typically 20 000 to 50 000 nT.
+	FlipMaxOffset = 0.5
+)
+
 // FlipOffset estimates the offsets of the two axes perpendicular to axis
 // (0 = x, 1 = y, 2 = z) from readings taken with the sensor at 0 and at 180
 // degrees of rotation about that axis in a steady field (observatory
@@ -26,6 +48,14 @@ type OffsetResult struct {
 //	offset = (mean(r0) + mean(r180)) / 2.
 //
 // The component along axis keeps its sign and is not determined.
+//
+// The logs are checked against what a flip does, and refused with an error
+// saying what is wrong when the two perpendicular axes both read the same
+// in the two logs (within FlipSameTolerance of the field, or six times the
+// readings' scatter: the logs were not flipped, or one log was given
+// twice), when axis reads differently (by more than FlipAxisTolerance of
+// the field: the sensor was turned about another axis), or when an offset
+// comes out larger than FlipMaxOffset of the field.
 func FlipOffset(r0, r180 [][3]float64, axis int) (*OffsetResult, error) {
 	if axis < 0 || axis > 2 {
 		return nil, fmt.Errorf("calibrate: flip: axis %d, want 0, 1 or 2", axis)
@@ -47,7 +77,51 @@ func FlipOffset(r0, r180 [][3]float64, axis int) (*OffsetResult, error) {
 		res.Offset[k] = 0.5 * (m0[k] + m1[k])
 		res.Sigma[k] = 0.5 * math.Sqrt(s0[k]*s0[k]/float64(len(r0))+s1[k]*s1[k]/float64(len(r180)))
 	}
+	if err := checkFlip(m0, m1, s0, s1, axis, res); err != nil {
+		return nil, err
+	}
 	return res, nil
+}
+
+// checkFlip refuses flip logs that do not look flipped about axis (see
+// FlipOffset).
+func checkFlip(m0, m1, s0, s1 [3]float64, axis int, res *OffsetResult) error {
+	name := func(k int) string { return string("xyz"[k]) }
+	f := math.Max(norm3(m0), norm3(m1))
+	a, b := (axis+1)%3, (axis+2)%3
+	if a > b {
+		a, b = b, a
+	}
+	diff := func(k int) float64 { return m1[k] - m0[k] }
+	same := func(k int) bool {
+		scatter := math.Sqrt(s0[k]*s0[k] + s1[k]*s1[k])
+		return math.Abs(diff(k)) < math.Max(FlipSameTolerance*f, 6*scatter)
+	}
+	if same(a) && same(b) {
+		return fmt.Errorf("calibrate: flip: the two logs read the same on %s and %s (means differ by %.0f and %.0f nT in a %.0f nT field), where a turn of 180 degrees about %s changes the sign of both: were they flipped, or is one log given twice?",
+			name(a), name(b), diff(a), diff(b), f, name(axis))
+	}
+	if d := diff(axis); math.Abs(d) > FlipAxisTolerance*f {
+		msg := fmt.Sprintf("calibrate: flip: the flip axis %s reads %.0f nT differently in the two logs (means %.0f and %.0f nT), where a turn about %s leaves it unchanged: was the sensor turned about %s, with that axis held in line?",
+			name(axis), math.Abs(d), m0[axis], m1[axis], name(axis), name(axis))
+		for _, k := range []int{a, b} {
+			if math.Abs(diff(k)) <= FlipAxisTolerance*f {
+				msg += fmt.Sprintf(" (%s reads the same in both: a turn about %s?)", name(k), name(k))
+			}
+		}
+		return errors.New(msg)
+	}
+	for _, k := range []int{a, b} {
+		if o := res.Offset[k]; math.Abs(o) > FlipMaxOffset*f {
+			msg := fmt.Sprintf("calibrate: flip: the offset found on %s, %.0f nT, is %.0f%% of the %.0f nT field, too large for a sensor offset: an axis that is not flipped reads its field component; were the two logs turned 180 degrees about %s?",
+				name(k), o, 100*math.Abs(o)/f, f, name(axis))
+			if same(k) {
+				msg += fmt.Sprintf(" (%s reads the same in both: a turn about %s?)", name(k), name(k))
+			}
+			return errors.New(msg)
+		}
+	}
+	return nil
 }
 
 // ZeroOffset estimates all three offsets as the mean of readings taken in

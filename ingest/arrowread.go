@@ -2,6 +2,7 @@ package ingest
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"io"
 	"math"
@@ -72,7 +73,10 @@ func newArrowFileReader(name string, f *os.File, cfg *config) (_ Reader, err err
 	defer recoverCorrupt(name, "Arrow IPC file", &err)
 	fr, err := ipc.NewFileReader(f, ipc.WithAllocator(cfg.mem))
 	if err != nil {
-		return nil, fileErr(name, err, "not a readable Arrow IPC file (truncated or corrupt?)")
+		if !endsWith(f, "ARROW1") {
+			return nil, fileErr(name, nil, "not a complete Arrow IPC file: its footer is missing or cut short (the file does not end with the ARROW1 magic bytes; an interrupted copy or a writer that stopped?)")
+		}
+		return nil, fileErr(name, plainErr{err}, "not a readable Arrow IPC file (corrupt?)")
 	}
 	r, err := newArrowReaderFor(name, string(FormatArrowFile), fr.Schema(), cfg)
 	if err != nil {
@@ -112,6 +116,23 @@ func (e *eofReader) Read(p []byte) (int, error) {
 	return n, err
 }
 
+// rowsIn says how many rows in how many record batches ("1 row in 1
+// record batch", "3000 rows in 3 record batches").
+func rowsIn(rows int64, batches int) string {
+	r, b := "rows", "record batches"
+	if rows == 1 {
+		r = "row"
+	}
+	if batches == 1 {
+		b = "record batch"
+	}
+	return fmt.Sprintf("%d %s in %d %s", rows, r, batches, b)
+}
+
+// unterminatedHint tells a user how to read the rows before the cut of an
+// Arrow IPC stream that stops short.
+const unterminatedHint = "to read the rows before the cut, allow an unterminated stream (on the command line --allow-unterminated)"
+
 func newArrowStreamReader(name string, f *os.File, cfg *config) (_ Reader, err error) {
 	defer recoverCorrupt(name, "Arrow IPC stream", &err)
 	src := &eofReader{r: f}
@@ -121,7 +142,10 @@ func newArrowStreamReader(name string, f *os.File, cfg *config) (_ Reader, err e
 	}
 	sr, err := ipc.NewReader(src, ipc.WithAllocator(cfg.mem))
 	if err != nil {
-		return nil, fileErr(name, err, "not a readable Arrow IPC stream (truncated or corrupt?)")
+		if src.eof && (errors.Is(err, io.ErrUnexpectedEOF) || errors.Is(err, io.EOF)) {
+			return nil, fileErr(name, nil, "not a complete Arrow IPC stream: the file stops at byte %d, before its schema message ends, so it holds no rows", src.n)
+		}
+		return nil, fileErr(name, plainErr{err}, "not a readable Arrow IPC stream (corrupt, or not Arrow?)")
 	}
 	r, err := newArrowReaderFor(name, string(FormatArrowStream), sr.Schema(), cfg)
 	if err != nil {
@@ -130,21 +154,35 @@ func newArrowStreamReader(name string, f *os.File, cfg *config) (_ Reader, err e
 	}
 	var rows int64
 	batches := 0
+	whole := src.n // where the last whole record batch (or the schema) ends
 	r.src = func() (arrow.RecordBatch, error) {
 		if sr.Next() {
 			rec := sr.RecordBatch()
 			rows += rec.NumRows()
 			batches++
+			whole = src.n
 			return rec, nil
 		}
 		if err := sr.Err(); err != nil {
-			return nil, err
+			if !src.eof || !errors.Is(err, io.ErrUnexpectedEOF) {
+				return nil, fileErr(name, plainErr{err}, "Arrow IPC stream: the message after byte %d (after %s) cannot be read (corrupt file?)", whole, rowsIn(rows, batches))
+			}
+			// The file ends inside a message: its length prefix,
+			// metadata or body stops short.
+			if batches == 0 {
+				return nil, fileErr(name, nil, "Arrow IPC stream is cut short: the file stops at byte %d, inside its first record batch (the schema ends at byte %d), so it holds no whole rows", src.n, whole)
+			}
+			if !cfg.allowUnterminated {
+				return nil, fileErr(name, nil, "Arrow IPC stream is cut short: the file stops at byte %d, inside a message; the last whole record batch ends at byte %d, after %s (an interrupted copy or a writer that stopped?); %s", src.n, whole, rowsIn(rows, batches), unterminatedHint)
+			}
+			r.pl.warn("%s: Arrow IPC stream is cut short: the file stops at byte %d, inside a message; kept %s, up to byte %d where the last whole record batch ends, as a possibly incomplete log", name, src.n, rowsIn(rows, batches), whole)
+			return nil, nil
 		}
 		if regular && src.eof {
 			if !cfg.allowUnterminated {
-				return nil, &Error{File: name, Batch: -1, Msg: fmt.Sprintf("Arrow IPC stream stops at byte %d, after %d rows in %d record batches, without its end-of-stream marker (0xFFFFFFFF 0x00000000): the file was probably cut short (an interrupted copy or a writer that stopped); to read the rows before the cut, allow an unterminated stream (ingest.WithAllowUnterminatedStream; on the command line --allow-unterminated)", src.n, rows, batches)}
+				return nil, fileErr(name, nil, "Arrow IPC stream stops at byte %d, after %s, without its end-of-stream marker (0xFFFFFFFF 0x00000000): the file was probably cut short (an interrupted copy or a writer that stopped); %s", src.n, rowsIn(rows, batches), unterminatedHint)
 			}
-			r.pl.warn("%s: Arrow IPC stream stops at byte %d, after %d rows in %d record batches, without its end-of-stream marker: read as a possibly incomplete log", name, src.n, rows, batches)
+			r.pl.warn("%s: Arrow IPC stream stops at byte %d, after %s, without its end-of-stream marker: read as a possibly incomplete log", name, src.n, rowsIn(rows, batches))
 		}
 		return nil, nil
 	}
@@ -156,17 +194,20 @@ func newParquetReader(name string, f *os.File, cfg *config) (_ Reader, err error
 	defer recoverCorrupt(name, "Parquet file", &err)
 	pf, err := file.NewParquetReader(f)
 	if err != nil {
-		return nil, fileErr(name, err, "not a readable Parquet file (truncated or corrupt?)")
+		if !endsWith(f, "PAR1") {
+			return nil, fileErr(name, nil, "not a complete Parquet file: its footer is missing or cut short (the file does not end with the PAR1 magic bytes; an interrupted copy or a writer that stopped?)")
+		}
+		return nil, fileErr(name, plainErr{err}, "not a readable Parquet file (corrupt?)")
 	}
 	fr, err := pqarrow.NewFileReader(pf, pqarrow.ArrowReadProperties{BatchSize: int64(cfg.batchRows)}, cfg.mem)
 	if err != nil {
 		pf.Close()
-		return nil, fileErr(name, err, "cannot read the Parquet schema")
+		return nil, fileErr(name, plainErr{err}, "cannot read the Parquet schema")
 	}
 	sc, err := fr.Schema()
 	if err != nil {
 		pf.Close()
-		return nil, fileErr(name, err, "cannot read the Parquet schema")
+		return nil, fileErr(name, plainErr{err}, "cannot read the Parquet schema")
 	}
 	r, err := newArrowReaderFor(name, string(FormatParquet), sc, cfg)
 	if err != nil {
@@ -176,7 +217,7 @@ func newParquetReader(name string, f *os.File, cfg *config) (_ Reader, err error
 	rr, err := fr.GetRecordReader(context.Background(), nil, nil)
 	if err != nil {
 		pf.Close()
-		return nil, fileErr(name, err, "cannot read the Parquet file")
+		return nil, fileErr(name, plainErr{err}, "cannot read the Parquet file")
 	}
 	r.src = func() (arrow.RecordBatch, error) {
 		if rr.Next() {
@@ -192,11 +233,25 @@ func newParquetReader(name string, f *os.File, cfg *config) (_ Reader, err error
 	return r, nil
 }
 
+// endsWith reports whether the file ends with the magic bytes that close
+// an Arrow IPC file ("ARROW1") or a Parquet file ("PAR1").
+func endsWith(f *os.File, magic string) bool {
+	st, err := f.Stat()
+	if err != nil || st.Size() < int64(len(magic)) {
+		return false
+	}
+	b := make([]byte, len(magic))
+	if _, err := f.ReadAt(b, st.Size()-int64(len(magic))); err != nil {
+		return false
+	}
+	return string(b) == magic
+}
+
 // recoverCorrupt turns a panic inside the Arrow or Parquet libraries on
 // corrupt input into an error.
 func recoverCorrupt(name, what string, err *error) {
 	if p := recover(); p != nil {
-		*err = fileErr(name, nil, "corrupt %s: %v", what, p)
+		*err = fileErr(name, nil, "corrupt %s: %s", what, plainText(fmt.Sprint(p)))
 	}
 }
 
@@ -216,7 +271,7 @@ func (r *arrowReader) Next() bool {
 			return false
 		}
 		if err != nil {
-			r.err = &Error{File: r.name, Batch: r.batch, Row: 0, Msg: "cannot read batch (truncated or corrupt file?)", Err: err}
+			r.err = &Error{File: r.name, Batch: r.batch, Row: 0, Msg: "cannot read batch (truncated or corrupt file?)", Err: plainErr{err}}
 			r.Release()
 			return false
 		}

@@ -80,10 +80,12 @@
 // one of them, are an error naming the header line and both column
 // numbers. Time going backwards is an error unless WithTimeOrder relaxes
 // it (to within each group, or not at all). An Arrow IPC stream file that
-// ends after a whole message but without its end-of-stream marker is an
-// error naming the byte offset where it stops, unless
-// WithAllowUnterminatedStream accepts it; the writers of this package (and
-// the broker's encoder) always end their streams with the marker. In
+// ends without its end-of-stream marker, after a whole message or inside
+// one, is an error naming the byte offset where it stops, unless
+// WithAllowUnterminatedStream accepts the record batches before the cut;
+// the writers of this package (and the broker's encoder) always end their
+// streams with the marker. An Arrow IPC file or a Parquet file cut short
+// (without its closing magic bytes) is an error saying so. In
 // IAGA-2002 files a day of year that disagrees with the date, or a value
 // after the four elements, is an error.
 //

@@ -68,3 +68,28 @@ func quoteText(s string) string {
 	}
 	return fmt.Sprintf("%q", s)
 }
+
+// libPrefixes are the package prefixes the Arrow and Parquet libraries put
+// on their messages; a user reading about their file has no use for them.
+var libPrefixes = map[string]bool{"arrow/ipc": true, "arrow/array": true, "arrow": true, "parquet": true, "pqarrow": true, "thrift": true}
+
+// plainText drops library package prefixes from a message, wherever in a
+// chain of wrapped messages ("arrow/ipc: could not read message body:
+// unexpected EOF") they appear.
+func plainText(s string) string {
+	parts := strings.Split(s, ": ")
+	kept := parts[:0]
+	for _, p := range parts {
+		if !libPrefixes[p] {
+			kept = append(kept, p)
+		}
+	}
+	return strings.Join(kept, ": ")
+}
+
+// plainErr shows a library error without its package prefixes while
+// keeping it for errors.Is and errors.As.
+type plainErr struct{ err error }
+
+func (e plainErr) Error() string { return plainText(e.err.Error()) }
+func (e plainErr) Unwrap() error { return e.err }

@@ -243,7 +243,11 @@ func TestArrowStreamEndOfStream(t *testing.T) {
 			p := write("cut.arrows", tc.data)
 			mem := checked(t)
 			_, err := ReadSamples(p, WithAllocator(mem))
-			wantErr(t, err, fmt.Sprintf("cut.arrows: Arrow IPC stream stops at byte %d, after %d rows in %d record batches, without its end-of-stream marker", len(tc.data), tc.rows, tc.rows/1000))
+			wantErr(t, err, fmt.Sprintf("cut.arrows: Arrow IPC stream stops at byte %d, after %s, without its end-of-stream marker", len(tc.data), rowsIn(int64(tc.rows), tc.rows/1000)))
+			wantErr(t, err, "on the command line --allow-unterminated")
+			if strings.Contains(err.Error(), "WithAllowUnterminatedStream") {
+				t.Errorf("error names the Go option: %v", err)
+			}
 			s, err := ReadSamples(p, WithAllocator(mem), WithAllowUnterminatedStream(true))
 			if err != nil {
 				t.Fatal(err)
@@ -264,10 +268,66 @@ func TestArrowStreamEndOfStream(t *testing.T) {
 			}
 		})
 	}
-	// A stream cut inside a message stays an error with the option.
-	p := write("cut.arrows", data[:ends[1]+100])
-	if _, err := ReadSamples(p, WithAllowUnterminatedStream(true)); err == nil || !strings.Contains(err.Error(), "truncated or corrupt") {
-		t.Errorf("cut inside a message: %v", err)
+	// A stream cut inside a message (its 8-byte prefix of continuation
+	// indicator and metadata length, its flatbuffer metadata, or its body;
+	// Arrow columnar format, "Encapsulated message format") is refused by
+	// default, naming the byte offset where the last whole batch ends, and
+	// read up to that batch with the option.
+	inside := []struct {
+		name string
+		cut  int
+	}{
+		{"in the length prefix", ends[1] + 5},
+		{"in the metadata", ends[1] + 8 + 20},
+		{"in the body", ends[1] + (ends[1]-ends[0])/2},
+		{"one byte short", ends[2] - 1},
+	}
+	for _, tc := range inside {
+		t.Run("cut "+tc.name, func(t *testing.T) {
+			const rows = 2000
+			p := write("cut.arrows", data[:tc.cut])
+			mem := checked(t)
+			_, err := ReadSamples(p, WithAllocator(mem))
+			wantErr(t, err, fmt.Sprintf("cut.arrows: Arrow IPC stream is cut short: the file stops at byte %d, inside a message; the last whole record batch ends at byte %d, after 2000 rows in 2 record batches", tc.cut, ends[1]))
+			wantErr(t, err, "to read the rows before the cut, allow an unterminated stream (on the command line --allow-unterminated)")
+			for _, bad := range []string{"arrow/ipc", "WithAllowUnterminatedStream", "batch 2 row 0"} {
+				if strings.Contains(err.Error(), bad) {
+					t.Errorf("error shows %q: %v", bad, err)
+				}
+			}
+			s, err := ReadSamples(p, WithAllocator(mem), WithAllowUnterminatedStream(true))
+			if err != nil {
+				t.Fatal(err)
+			}
+			if s.Len() != rows || s.Time[rows-1] != float64(rows-1) {
+				t.Errorf("allowed: %d rows, want %d", s.Len(), rows)
+			}
+			want := fmt.Sprintf("cut.arrows: Arrow IPC stream is cut short: the file stops at byte %d, inside a message; kept 2000 rows in 2 record batches, up to byte %d", tc.cut, ends[1])
+			if len(s.Warnings) != 1 || !strings.Contains(s.Warnings[0], want) {
+				t.Errorf("allowed: warnings %q, want one containing %q", s.Warnings, want)
+			}
+		})
+	}
+	// A stream cut inside its schema message holds no rows: an error
+	// either way, naming where it stops.
+	for _, allow := range []bool{false, true} {
+		_, err := ReadSamples(write("head.arrows", data[:30]), WithAllowUnterminatedStream(allow))
+		wantErr(t, err, "head.arrows: not a complete Arrow IPC stream: the file stops at byte 30, before its schema message ends")
+	}
+	// Cut inside the first record batch: no whole rows, an error either way.
+	for _, allow := range []bool{false, true} {
+		_, err := ReadSamples(write("first.arrows", data[:ends[0]-10]), WithAllowUnterminatedStream(allow))
+		wantErr(t, err, fmt.Sprintf("first.arrows: Arrow IPC stream is cut short: the file stops at byte %d, inside its first record batch", ends[0]-10))
+	}
+	// A corrupt metadata length (2, below the 4 bytes any flatbuffer
+	// needs) is not mistaken for a cut, and the library's package prefix
+	// is not shown.
+	bad := append([]byte(nil), data...)
+	binary.LittleEndian.PutUint32(bad[ends[0]+4:], 2)
+	_, err = ReadSamples(write("bad.arrows", bad), WithAllowUnterminatedStream(true))
+	wantErr(t, err, fmt.Sprintf("bad.arrows: Arrow IPC stream: the message after byte %d (after 1000 rows in 1 record batch) cannot be read (corrupt file?): invalid message metadata length 2", ends[0]))
+	if strings.Contains(err.Error(), "arrow/ipc") {
+		t.Errorf("corrupt message: %v", err)
 	}
 	// The 4-byte marker of streams written before format version 0.15
 	// (same specification, "Legacy" end of stream: 0x00000000) ends a
@@ -481,6 +541,58 @@ func TestTimeOrderPerGroup(t *testing.T) {
 	for s, want := range map[string]TimeOrder{"ordered": TimeOrdered, "per-group": TimeOrderedPerGroup, "any": TimeAnyOrder} {
 		if got, err := ParseTimeOrder(s); err != nil || got != want {
 			t.Errorf("ParseTimeOrder(%q) = %v, %v", s, got, err)
+		}
+	}
+}
+
+// TestCutFileFooters: an Arrow IPC file ends with the magic bytes "ARROW1"
+// after its footer (Arrow columnar format, "IPC File Format") and a
+// Parquet file with "PAR1" after its footer (Apache Parquet format
+// specification, "File Format"); a file cut short has lost them, and the
+// error says so in plain words, without the libraries' package prefixes.
+func TestCutFileFooters(t *testing.T) {
+	dir := t.TempDir()
+	s := testSamples()
+	for _, tc := range []struct{ name, magic, want string }{
+		{"log.arrow", "ARROW1", "cut.log.arrow: not a complete Arrow IPC file: its footer is missing or cut short"},
+		{"log.parquet", "PAR1", "cut.log.parquet: not a complete Parquet file: its footer is missing or cut short"},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			full := filepath.Join(dir, tc.name)
+			if err := WriteSamples(full, s); err != nil {
+				t.Fatal(err)
+			}
+			b, err := os.ReadFile(full)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if !bytes.HasSuffix(b, []byte(tc.magic)) {
+				t.Fatalf("%s does not end with %q", tc.name, tc.magic)
+			}
+			cut := filepath.Join(dir, "cut."+tc.name)
+			if err := os.WriteFile(cut, b[:len(b)*2/3], 0o644); err != nil {
+				t.Fatal(err)
+			}
+			_, err = ReadSamples(cut)
+			wantErr(t, err, tc.want)
+			for _, bad := range []string{"arrow/ipc", ": parquet:", "smaller than indicated"} {
+				if strings.Contains(err.Error(), bad) {
+					t.Errorf("error shows %q: %v", bad, err)
+				}
+			}
+		})
+	}
+}
+
+func TestPlainText(t *testing.T) {
+	for _, tc := range []struct{ in, want string }{
+		{"arrow/ipc: could not read message body: unexpected EOF", "could not read message body: unexpected EOF"},
+		{"parquet: could not read footer: parquet: bad thing", "could not read footer: bad thing"},
+		// A file name ending in a format name is not a prefix.
+		{"x.parquet: bad", "x.parquet: bad"},
+	} {
+		if got := plainText(tc.in); got != tc.want {
+			t.Errorf("plainText(%q) = %q, want %q", tc.in, got, tc.want)
 		}
 	}
 }

@@ -266,12 +266,15 @@ func WithTimeOrder(o TimeOrder) Option {
 }
 
 // WithAllowUnterminatedStream(true) reads an Arrow IPC stream file that ends
-// without its end-of-stream marker (0xFFFFFFFF 0x00000000) after a whole
-// message, as a writer stopped mid-run leaves it, and records a warning (see
-// Warnings). By default such a file is an error naming the byte offset where
-// it stops, since it usually means a copy was cut short. A stream cut inside
-// a message is an error either way. Streams that are not regular files
-// (pipes) may end without the marker, as the format allows.
+// without its end-of-stream marker (0xFFFFFFFF 0x00000000), as a writer
+// stopped mid-run or a copy cut short leaves it: after a whole message, or
+// inside one (its length prefix, metadata or body stops short). The record
+// batches before the cut are read and a warning names the byte offset where
+// the file stops and the rows kept (see Warnings). By default such a file is
+// an error naming the byte offset where it stops and where the last whole
+// record batch ends. A stream cut inside its schema message holds no rows
+// and is an error either way. Streams that are not regular files (pipes)
+// may end without the marker after a whole message, as the format allows.
 func WithAllowUnterminatedStream(ok bool) Option {
 	return func(c *config) { c.allowUnterminated = ok }
 }

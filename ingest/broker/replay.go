@@ -5,6 +5,8 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"strconv"
+	"strings"
 	"time"
 
 	"github.com/nats-io/nats.go/jetstream"
@@ -12,13 +14,39 @@ import (
 	"undercurrent/ingest"
 )
 
+// SplitOption changes how SplitSamples treats a log.
+type SplitOption func(*splitConfig)
+
+type splitConfig struct {
+	sortTimes bool
+}
+
+// WithSortedTimes(true) sorts each sensor's rows by time before they are
+// cut into batches, for a log whose rows may come in any order (read with
+// ingest.TimeAnyOrder). By default a row whose time does not follow the
+// previous row of its sensor is an error. A row that repeats a time of its
+// sensor is an error either way: a sensor cannot read twice at one instant,
+// and the live pipeline takes each sensor's times as strictly increasing.
+func WithSortedTimes(ok bool) SplitOption {
+	return func(c *splitConfig) { c.sortTimes = ok }
+}
+
 // SplitSamples cuts a log into per-sensor batches of at most dur seconds
 // each, in time order. The sensor of each row is its group when the log
 // has a group column, or sensor otherwise (sensor, when given, also
 // selects one group of a grouped log). Rows with a missing value are
-// skipped; times must increase within each sensor. Fields are taken as the
-// sensor's own readings (the site file holds positions and orientation).
-func SplitSamples(s *ingest.Samples, asset, sensor string, dur float64) ([]*Batch, error) {
+// skipped; times must increase within each sensor (see WithSortedTimes).
+// Fields are taken as the sensor's own readings (the site file holds
+// positions and orientation).
+//
+// Errors about the log start with its name (s.Source) and locate the row
+// as "row N of the log", counting the log's data rows from 1; times are
+// printed in full, with the UTC date and time when they are absolute.
+func SplitSamples(s *ingest.Samples, asset, sensor string, dur float64, opts ...SplitOption) ([]*Batch, error) {
+	var cfg splitConfig
+	for _, o := range opts {
+		o(&cfg)
+	}
 	if err := ValidToken(asset); err != nil {
 		return nil, err
 	}
@@ -26,29 +54,49 @@ func SplitSamples(s *ingest.Samples, asset, sensor string, dur float64) ([]*Batc
 		return nil, fmt.Errorf("broker: batch duration %v s is not positive", dur)
 	}
 	if s.Group == nil && sensor == "" {
-		return nil, fmt.Errorf("broker: %s: the log has no group column, so name the sensor", s.Source)
+		return nil, fmt.Errorf("%s: the log has no group column, so name the sensor", s.Source)
 	}
-	open := map[string]*Batch{}
-	var out []*Batch
-	for i := 0; i < s.Len(); i++ {
-		name := sensor
+	sensorOf := func(i int) string {
 		if s.Group != nil {
-			if sensor != "" && s.Group[i] != sensor {
-				continue
-			}
-			name = s.Group[i]
+			return s.Group[i]
 		}
-		t, bx, by, bz := s.Time[i], s.Bx[i], s.By[i], s.Bz[i]
-		if math.IsNaN(t) || math.IsNaN(bx) || math.IsNaN(by) || math.IsNaN(bz) {
+		return sensor
+	}
+	rows := make([]int, 0, s.Len())
+	for i := 0; i < s.Len(); i++ {
+		if s.Group != nil && sensor != "" && s.Group[i] != sensor {
 			continue
 		}
-		b := open[name]
-		if b != nil && !(t > b.Time[len(b.Time)-1]) {
-			return nil, fmt.Errorf("broker: %s: row %d: column time: %v does not follow %v for sensor %q", s.Source, i+1, t, b.Time[len(b.Time)-1], name)
+		if math.IsNaN(s.Time[i]) || math.IsNaN(s.Bx[i]) || math.IsNaN(s.By[i]) || math.IsNaN(s.Bz[i]) {
+			continue
 		}
+		rows = append(rows, i)
+	}
+	if cfg.sortTimes {
+		// A stable sort of all rows by time sorts each sensor's rows and
+		// keeps the sensors interleaved as they were logged.
+		sort.SliceStable(rows, func(a, b int) bool { return s.Time[rows[a]] < s.Time[rows[b]] })
+	}
+	open := map[string]*Batch{}
+	lastRow := map[string]int{}
+	var out []*Batch
+	for _, i := range rows {
+		name := sensorOf(i)
+		t, bx, by, bz := s.Time[i], s.Bx[i], s.By[i], s.Bz[i]
+		b := open[name]
+		if b != nil {
+			prev := b.Time[len(b.Time)-1]
+			switch {
+			case t == prev:
+				return nil, fmt.Errorf("%s: row %d of the log: column time: sensor %q reads twice at %s (row %d of the log has the same time): a sensor cannot read twice at one instant", s.Source, i+1, name, timeText(t), lastRow[name]+1)
+			case t < prev:
+				return nil, fmt.Errorf("%s: row %d of the log: column time: time goes backwards for sensor %q: %s after %s (row %d of the log); if the rows may come in any order, allow it (on the command line --time-order any) and they are sent sorted by time", s.Source, i+1, name, timeText(t), timeText(prev), lastRow[name]+1)
+			}
+		}
+		lastRow[name] = i
 		if b == nil || t-b.Time[0] >= dur {
 			if err := ValidToken(name); err != nil {
-				return nil, fmt.Errorf("broker: %s: row %d: column group: %w", s.Source, i+1, err)
+				return nil, fmt.Errorf("%s: row %d of the log: column group: %s", s.Source, i+1, strings.TrimPrefix(err.Error(), "broker: "))
 			}
 			b = &Batch{Asset: asset, Sensor: name}
 			if s.Temp != nil {
@@ -64,11 +112,24 @@ func SplitSamples(s *ingest.Samples, asset, sensor string, dur float64) ([]*Batc
 		}
 	}
 	if len(out) == 0 {
-		return nil, fmt.Errorf("broker: %s: no complete rows to replay", s.Source)
+		return nil, fmt.Errorf("%s: no complete rows to replay", s.Source)
 	}
 	// Send in the order the data would have arrived: by last sample time.
 	sort.SliceStable(out, func(i, j int) bool { return out[i].Time[len(out[i].Time)-1] < out[j].Time[len(out[j].Time)-1] })
 	return out, nil
+}
+
+// timeText prints a time in seconds in full (the shortest text that reads
+// back to the same float64), followed by its UTC date and time when it
+// is an absolute Unix time (1e8 s to 1e11 s: 1973 to 5138).
+func timeText(t float64) string {
+	s := strconv.FormatFloat(t, 'f', -1, 64)
+	if math.Abs(t) >= 1e8 && math.Abs(t) < 1e11 {
+		// A float64 near 2e9 s resolves 0.24 us: the date is shown to
+		// the microsecond, past which its digits are rounding noise.
+		s += " (" + time.UnixMicro(int64(math.Round(t*1e6))).UTC().Format("2006-01-02T15:04:05.999999Z") + ")"
+	}
+	return s
 }
 
 // ReplaySettings tune Replay; the zero value sends as fast as the broker

@@ -63,16 +63,23 @@ func TestSplitSamples(t *testing.T) {
 func TestSplitSamplesErrors(t *testing.T) {
 	s := groupedLog(5)
 	s.Time[6] = s.Time[4] // sensor s1, row 7 repeats row 5's time
+	// Sensor s1 (rows 1, 3, 5, 7) reads at 1776760809.7, .8, 1776760810
+	// and then 1776760809.9 s, a tenth of a second back: the last two
+	// differ in the tenth significant digit, which %v's shortest 'e' form
+	// printed as 1.7767608099e+09 and 1.77676081e+09.
+	back := groupedLog(4)
+	copy(back.Time, []float64{1776760809.7, 1776760809.7, 1776760809.8, 1776760809.8, 1776760810, 1776760810, 1776760809.9, 1776760810.1})
 	cases := []struct {
 		name          string
 		s             *ingest.Samples
 		asset, sensor string
 		want          string
 	}{
-		{"backwards time names row", s, "fenwick-lane", "", "row 7: column time"},
-		{"no group and no sensor", &ingest.Samples{Source: "x.csv", Time: []float64{1}, Bx: []float64{1}, By: []float64{1}, Bz: []float64{1}}, "a", "", "name the sensor"},
+		{"repeated time names both rows", s, "fenwick-lane", "", `harrow-fen-fixed.csv: row 7 of the log: column time: sensor "s1" reads twice at 1764650000.02 (2025-12-02T04:33:20.02Z) (row 5 of the log has the same time)`},
+		{"backwards time in full", back, "fenwick-lane", "", `harrow-fen-fixed.csv: row 7 of the log: column time: time goes backwards for sensor "s1": 1776760809.9 (2026-04-21T08:40:09.9Z) after 1776760810 (2026-04-21T08:40:10Z) (row 5 of the log); if the rows may come in any order, allow it (on the command line --time-order any)`},
+		{"no group and no sensor", &ingest.Samples{Source: "x.csv", Time: []float64{1}, Bx: []float64{1}, By: []float64{1}, Bz: []float64{1}}, "a", "", "x.csv: the log has no group column, so name the sensor"},
 		{"bad asset", groupedLog(2), "a b", "", `name "a b"`},
-		{"bad group", func() *ingest.Samples { g := groupedLog(2); g.Group[0] = "s.1"; return g }(), "a", "", "row 1: column group"},
+		{"bad group", func() *ingest.Samples { g := groupedLog(2); g.Group[0] = "s.1"; return g }(), "a", "", `harrow-fen-fixed.csv: row 1 of the log: column group: name "s.1"`},
 	}
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
@@ -80,7 +87,31 @@ func TestSplitSamplesErrors(t *testing.T) {
 			if err == nil || !strings.Contains(err.Error(), tc.want) {
 				t.Fatalf("error %v, want one containing %q", err, tc.want)
 			}
+			if tc.name != "bad asset" && strings.HasPrefix(err.Error(), "broker:") {
+				t.Errorf("error about the log starts with the package name: %v", err)
+			}
 		})
+	}
+	// With sorted times the backwards row takes its place; a repeated time
+	// stays an error.
+	bs, err := SplitSamples(back, "fenwick-lane", "s1", 10, WithSortedTimes(true))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(bs) != 1 {
+		t.Fatalf("%d batches, want 1", len(bs))
+	}
+	got := bs[0].Time
+	for i := 1; i < len(got); i++ {
+		if !(got[i] > got[i-1]) {
+			t.Fatalf("sorted times %v do not increase", got)
+		}
+	}
+	if len(got) != 4 || bs[0].Bx[2] != 3 {
+		t.Errorf("sorted: times %v, bx %v: want row 7 (bx 3) third", got, bs[0].Bx)
+	}
+	if _, err := SplitSamples(s, "fenwick-lane", "", 1, WithSortedTimes(true)); err == nil || !strings.Contains(err.Error(), "reads twice") {
+		t.Errorf("sorted, repeated time: %v", err)
 	}
 }
 

@@ -1,0 +1,89 @@
+package calibrate
+
+import (
+	"fmt"
+	"math"
+	"strings"
+
+	"undercurrent/ingest"
+)
+
+// MaxReferenceMismatch is the relative difference between a log's median
+// corrected |B| and a calibration's reference_nt above which Check warns.
+//
+// The Earth's main field changes by a few nT per kilometre (the gradients
+// of the IGRF and WMM main-field models), its daily variation at mid
+// latitudes is some tens of nT and even a strong magnetic storm moves it
+// by a few hundred nT: over one site and one day |B| stays within about
+// 1% (500 nT of 50 000). A calibration made for another sensor leaves that
+// sensor's own offsets (hundreds to thousands of nT) and scale errors
+// (percent) in the corrected field, which moves the median |B| by more.
+// 2% leaves room for the survey's own anomalies and for a log made some
+// hundreds of kilometres from where the calibration was made.
+const MaxReferenceMismatch = 0.02
+
+// sensorKeys are the metadata keys (Samples.Meta) that name a log's sensor.
+var sensorKeys = []string{"sensor", "sensor_id", "serial"}
+
+// SensorName returns the sensor a log names in its metadata (the Meta keys
+// "sensor", "sensor_id" or "serial": in a CSV file the comment line
+// "# undercurrent.meta.sensor: MAG-0412", in an Arrow or Parquet file the
+// schema metadata key "undercurrent.meta.sensor"), or "" when it names
+// none. The calibrate command records it in Calibration.Sensor.
+func SensorName(s *ingest.Samples) string {
+	for _, k := range sensorKeys {
+		if v := strings.TrimSpace(s.Meta[k]); v != "" {
+			return v
+		}
+	}
+	return ""
+}
+
+// Check looks for signs that c was made for another sensor than the one
+// that took s, and returns a warning for each; none when nothing is amiss
+// or nothing can be compared. s is the log as read, before Apply: Check
+// corrects a copy of the field itself and leaves s unchanged.
+//
+//   - When c names its sensor (Calibration.Sensor) and s names one too
+//     (SensorName), they must be the same.
+//   - When c has a reference field magnitude (reference_nt, written by the
+//     ellipsoid method), the median |B| of s after the correction must be
+//     within MaxReferenceMismatch of it. The median, not the mean, so that
+//     readings near a conductor or a buried steel object do not move it.
+//
+// Rows with a non-finite field component are left out.
+func (c *Calibration) Check(s *ingest.Samples) []string {
+	var warns []string
+	if got := SensorName(s); c.Sensor != "" && got != "" && got != c.Sensor {
+		warns = append(warns, fmt.Sprintf("%s was taken by sensor %q, but the calibration was made for sensor %q: a calibration belongs to one sensor", source(s), got, c.Sensor))
+	}
+	if !(c.Reference > 0) || checkField(s) != nil {
+		return warns
+	}
+	mags := make([]float64, 0, s.Len())
+	for i := range s.Bx {
+		r := [3]float64{s.Bx[i], s.By[i], s.Bz[i]}
+		if !finite3(r) {
+			continue
+		}
+		v := c.Correct(r)
+		mags = append(mags, math.Sqrt(v[0]*v[0]+v[1]*v[1]+v[2]*v[2]))
+	}
+	if len(mags) == 0 {
+		return warns
+	}
+	med := median(mags, make([]float64, 0, len(mags)))
+	if d := (med - c.Reference) / c.Reference; math.Abs(d) > MaxReferenceMismatch {
+		warns = append(warns, fmt.Sprintf("%s: median |B| after the calibration is %.0f nT, %+.1f%% from the %.0f nT the calibration was made in (more than the %.0f%% the Earth's field changes over a site and a day): was the calibration made for another sensor, or far from this site?", source(s), med, 100*d, c.Reference, 100*MaxReferenceMismatch))
+	}
+	return warns
+}
+
+func finite3(r [3]float64) bool {
+	for _, v := range r {
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			return false
+		}
+	}
+	return true
+}
