@@ -322,6 +322,9 @@ type survey struct {
 	// alerts are warnings that the answer may be wrong (a route fitted
 	// as one line, spikes left in); they come first.
 	alerts []string
+	// groupWarned is set when a log's group column drew the --group-by
+	// warning (then the span check is not needed).
+	groupWarned bool
 }
 
 // runLocate reads, corrects, fits and analyses; progress, when not nil,
@@ -416,6 +419,7 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (*survey, 
 		if o.groupBy == "" {
 			if w := groupColumnWarning(path, groupColumnName(o), s); w != "" {
 				sv.alerts = append(sv.alerts, w)
+				sv.groupWarned = true
 			}
 		}
 		if !o.despike {
@@ -682,8 +686,8 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 		return nil, err
 	}
 	head := *sv.doc
-	alerts := sv.alerts
-	if o.groupBy == "" && len(alerts) == 0 {
+	alerts := append([]string(nil), sv.alerts...)
+	if o.groupBy == "" && !sv.groupWarned {
 		if w := spanWarning(sv); w != "" {
 			alerts = append(alerts, w)
 		}

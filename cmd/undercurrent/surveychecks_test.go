@@ -83,6 +83,17 @@ func TestLocateWarnsWithoutGroupBy(t *testing.T) {
 		t.Errorf("JSON warnings %q: want the span warning first", doc.Warnings)
 	}
 
+	// With spikes too, both warnings.
+	addSpikes(s, 0.02, 3)
+	both := filepath.Join(dir, "nogroup-spiky.csv")
+	if err := ingest.WriteSamples(both, s); err != nil {
+		t.Fatal(err)
+	}
+	doc = decodeDoc(t, mustCLI(t, "locate", "--json", both))
+	if !containsAll(doc.Warnings, "along the fitted line") || !containsAll(doc.Warnings, "rerun with --despike") {
+		t.Errorf("no group column, spikes: warnings %q: want both", doc.Warnings)
+	}
+
 	// One traverse across a line: no warning.
 	one, err := ingest.ReadSamples(simulatedLog(t, dir, "line.csv"))
 	if err != nil {
