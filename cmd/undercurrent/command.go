@@ -72,9 +72,14 @@ func (c *command) printHelp(w io.Writer, fs *pflag.FlagSet) {
 	if fs.HasFlags() {
 		fmt.Fprintf(w, "\nFlags:\n%s", fs.FlagUsages())
 	}
-	if c.name != "serve" && c.name != "version" {
+	switch c.name {
+	case "serve", "version":
+	case "simulate":
+		fmt.Fprintf(w, "\n%s\n", simulateInterruptHelp)
+	default:
 		fmt.Fprintf(w, "\n%s\n", interruptHelp)
 	}
+	fmt.Fprintf(w, "\n%s\n", exitHelp)
 }
 
 // interruptHelp says what Ctrl-C does (serve documents its own draining).
@@ -82,6 +87,18 @@ const interruptHelp = `Ctrl-C (SIGINT) or SIGTERM stops the command at the next 
 batches while reading); it prints "interrupted", writes no output (files
 and directories appear whole or not at all) and exits with status 130
 (SIGINT) or 143 (SIGTERM).`
+
+// simulateInterruptHelp is interruptHelp for simulate, which reads no log.
+const simulateInterruptHelp = `Ctrl-C (SIGINT) or SIGTERM stops the command before it writes anything; it
+prints "interrupted", writes no output (each file appears whole or not at
+all) and exits with status 130 (SIGINT) or 143 (SIGTERM).`
+
+// exitHelp lists the exit statuses.
+const exitHelp = `Exit status: 0 on success; 1 on failure (input that cannot be read or
+used, a write that fails); 2 on a usage error: a bad flag, flag value or
+argument, including an output location that cannot be used (an output
+file's directory that does not exist, -o DIR naming a file or a directory
+holding files undercurrent did not write), found before any work is done.`
 
 func sortedCommands() []*command {
 	list := make([]*command, 0, len(commands))
@@ -100,6 +117,7 @@ func printCommands(w io.Writer) {
 	}
 	fmt.Fprintf(w, "\nRun \"undercurrent help COMMAND\" or \"undercurrent COMMAND --help\" for details.\n")
 	fmt.Fprintf(w, "Ctrl-C (SIGINT) or SIGTERM stops a command at the next stage and writes no output: exit status 130 (143 for SIGTERM).\n")
+	fmt.Fprintf(w, "Exit status 1 is a failure, 2 a usage error (a bad flag, flag value, argument or output location).\n")
 	fmt.Fprintf(w, "Start with \"undercurrent demo\" to run the whole job on a bundled example.\n")
 }
 
@@ -222,7 +240,7 @@ func cleanMessage(cmd string, args []string, msg string) string {
 		}
 		out = append(out, p)
 	}
-	s := strings.Join(out, ": ")
+	s := cliWording(strings.Join(out, ": "))
 	const missing = "; missing values are not allowed by default"
 	if strings.HasSuffix(s, missing) {
 		s = strings.TrimSuffix(s, missing) + missingAdvice(cmd)

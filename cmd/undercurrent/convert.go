@@ -43,7 +43,7 @@ Examples:
 		},
 		run: func(ctx context.Context, fs *pflag.FlagSet, args []string, stdout, stderr io.Writer) error {
 			if len(args) != 2 {
-				return usageErrorf("convert takes IN and OUT, got %d arguments", len(args))
+				return usageErrorf("convert takes IN and OUT, got %s", plural(len(args), "argument"))
 			}
 			in, out := args[0], args[1]
 			if strict && rf.dropMissing {

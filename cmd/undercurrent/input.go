@@ -2,8 +2,10 @@ package main
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"math"
+	"regexp"
 	"sort"
 	"strconv"
 	"strings"
@@ -78,9 +80,15 @@ func (f *readFlags) options(fs *pflag.FlagSet) ([]ingest.Option, error) {
 	f.columnsOld, f.unitsOld = nil, nil
 	if len(f.columns) > 0 {
 		opts = append(opts, ingest.WithColumns(f.columns...))
+		if err := checkOption("--column", "column mapping ", ingest.WithColumns(f.columns...)); err != nil {
+			return nil, err
+		}
 	}
 	if len(f.units) > 0 {
 		opts = append(opts, ingest.WithUnits(f.units...))
+		if err := checkOption("--unit", "unit ", ingest.WithUnits(f.units...)); err != nil {
+			return nil, err
+		}
 	}
 	switch d := f.delimiter; d {
 	case "":
@@ -151,6 +159,89 @@ func (f *readFlags) options(fs *pflag.FlagSet) ([]ingest.Option, error) {
 	return opts, nil
 }
 
+// checkOption refuses a flag value that ingest refuses as an option (an
+// unknown canonical column in --column, an unknown unit in --unit) as a
+// usage error, before any file is read. ingest checks its options when a
+// log is opened, before the file itself: opening no file with the option
+// alone gives either the option's error or an *ingest.Error about the
+// file. prefix is the start of ingest's message, replaced by the flag.
+func checkOption(flag, prefix string, opt ingest.Option) error {
+	r, err := ingest.Open("", opt)
+	if err == nil {
+		r.Release()
+		return nil
+	}
+	var fe *ingest.Error
+	if errors.As(err, &fe) {
+		return nil // the option is good; only the (absent) file is not
+	}
+	msg := strings.TrimPrefix(err.Error(), "ingest: ")
+	return usageErrorf("%s %s", flag, strings.TrimPrefix(msg, prefix))
+}
+
+// baseOptions are the ingest options for a base-station log (locate
+// --base): missing values are allowed (a base log is only interpolated,
+// and its gaps are reported), and the flags that say how far to trust a
+// file apply to it as to the survey logs: --allow-unterminated,
+// --time-order and --iaga-baseline-frame. The flags that describe the
+// survey logs' layout (--column, --unit, --header, --delimiter, --comment,
+// --decimal-comma, --frame, --origin) do not: a base log comes from
+// another instrument, usually in another format.
+func (f *readFlags) baseOptions(fs *pflag.FlagSet) []ingest.Option {
+	opts := []ingest.Option{ingest.WithAllowMissing(true), ingest.WithIAGABaselineFrame(f.iagaBaseline)}
+	if f.allowUnterminated {
+		opts = append(opts, ingest.WithAllowUnterminatedStream(true))
+	}
+	if fs != nil && fs.Changed("time-order") {
+		if o, err := ingest.ParseTimeOrder(f.timeOrder); err == nil {
+			opts = append(opts, ingest.WithTimeOrder(o))
+		}
+	}
+	return opts
+}
+
+// sortByTime puts the rows of s in time order (a stable sort, so rows at
+// the same time keep their order) and returns how many rows step back in
+// time in the file (0: nothing moved). It returns the original row index
+// of each row in order, for messages.
+func sortByTime(s *ingest.Samples) (back int, orig []int) {
+	n := s.Len()
+	orig = make([]int, n)
+	for i := range orig {
+		orig[i] = i
+	}
+	for i := 1; i < n; i++ {
+		if s.Time[i] < s.Time[i-1] {
+			back++
+		}
+	}
+	if back == 0 {
+		return 0, orig
+	}
+	sort.SliceStable(orig, func(a, b int) bool { return s.Time[orig[a]] < s.Time[orig[b]] })
+	perm := func(v []float64) []float64 {
+		if v == nil {
+			return nil
+		}
+		out := make([]float64, n)
+		for i, j := range orig {
+			out[i] = v[j]
+		}
+		return out
+	}
+	for _, p := range []*[]float64{&s.Time, &s.X, &s.Y, &s.Z, &s.Bx, &s.By, &s.Bz, &s.Temp, &s.Roll, &s.Pitch, &s.Yaw, &s.Qw, &s.Qx, &s.Qy, &s.Qz, &s.F} {
+		*p = perm(*p)
+	}
+	if s.Group != nil {
+		g := make([]string, n)
+		for i, j := range orig {
+			g[i] = s.Group[j]
+		}
+		s.Group = g
+	}
+	return back, orig
+}
+
 // fieldUnitGiven reports whether --unit named the unit of a field column,
 // which overrides the refusal of an implausible field magnitude.
 func (f *readFlags) fieldUnitGiven() bool {
@@ -203,6 +294,12 @@ func readSamples(ctx context.Context, path string, opts ...ingest.Option) (*inge
 	defer r.Release()
 	s, err := ingest.Collect(&ctxReader{Reader: r, ctx: ctx})
 	if err != nil {
+		// The wrapper hides the reader's file name from Collect ("no
+		// data rows").
+		var fe *ingest.Error
+		if errors.As(err, &fe) && fe.File == "" {
+			fe.File = path
+		}
 		return nil, err
 	}
 	s.Warnings = ingest.Warnings(r) // the wrapper hides them from Collect
@@ -267,7 +364,10 @@ func (f *readFlags) readLog(ctx context.Context, path string, opts []ingest.Opti
 	}
 	// The reader's own warnings (an unterminated stream read anyway,
 	// same-named columns, an IAGA-2002 file without DECBAS).
-	warns := append([]string(nil), s.Warnings...)
+	var warns []string
+	for _, w := range s.Warnings {
+		warns = append(warns, cliWording(w))
+	}
 	if f.dropMissing {
 		if n := dropMissingRows(s); n > 0 {
 			if s.Len() == 0 {
@@ -295,6 +395,9 @@ func (f *readFlags) readLog(ctx context.Context, path string, opts []ingest.Opti
 // field removed (then it can be much smaller, and that is fine).
 const earthMinNT, earthMaxNT = 1.5e4, 8e4
 
+// earthBand words the band for messages and help texts.
+const earthBand = "the Earth's field band of 15000-80000 nT"
+
 // Beyond these medians a log cannot be read in the unit given, whatever was
 // done to it: below 1 pT is under the noise of a single reading of any field
 // magnetometer (fluxgates are about 10 pT/sqrt(Hz), optically pumped ones
@@ -318,7 +421,8 @@ func checkFieldUnits(ctx context.Context, path string, bx, by, bz []float64, opt
 	if in, err := inspectCtx(ctx, path, opts...); err == nil {
 		for _, s := range in.Warnings {
 			if strings.HasPrefix(s, "field:") {
-				w = cliWording(s)
+				// Without inspect's "field: " label.
+				w = strings.TrimPrefix(cliWording(s), "field: ")
 				break
 			}
 		}
@@ -326,14 +430,14 @@ func checkFieldUnits(ctx context.Context, path string, bx, by, bz []float64, opt
 		return "", err
 	}
 	if w == "" {
-		w = fmt.Sprintf("field: median |B| is %.4g nT, far from an Earth field of about 20000-70000 nT: right for a log with the Earth's field removed; otherwise the field columns' unit is wrong (give it with --unit bx=U,by=U,bz=U)", m)
+		w = fmt.Sprintf("median |B| is %.4g nT, outside %s: right for a log with the Earth's field removed; otherwise the field columns' unit is wrong (give it with --unit bx=U,by=U,bz=U)", m, earthBand)
 	}
 	if !unitGiven && (m < implausibleLowNT || m > implausibleHighNT) {
 		limit := "below 1 pT"
 		if m > implausibleHighNT {
 			limit = "above 0.1 T"
 		}
-		return "", fmt.Errorf("%s: %s. Refused: a median |B| %s is impossible for a magnetometer log in the unit read; if that unit really is right, give it with --unit bx=U,by=U,bz=U to go on", path, strings.TrimPrefix(w, "field: "), limit)
+		return "", fmt.Errorf("%s: %s. Refused: a median |B| %s is impossible for a magnetometer log in the unit read; if that unit really is right, give it with --unit bx=U,by=U,bz=U to go on", path, w, limit)
 	}
 	return path + ": " + w, nil
 }
@@ -365,10 +469,21 @@ func inspectCtx(ctx context.Context, path string, opts ...ingest.Option) (*inges
 
 // cliWording turns ingest's suggestions ("try units bx=T", "try columns
 // lon=...") into the flags that give them.
+//
+// It also words ingest's messages for the command line: the Earth's band is the one the
+// check uses (earthMinNT, earthMaxNT), a mapping is given with --column,
+// an option is named by its flag, and a count of one takes the singular.
 func cliWording(s string) string {
 	s = strings.ReplaceAll(s, "(try units ", "(try --unit ")
-	return strings.ReplaceAll(s, "(try columns ", "(try --column ")
+	s = strings.ReplaceAll(s, "(try columns ", "(try --column ")
+	s = strings.ReplaceAll(s, "far from an Earth field of about 20000-70000 nT", "outside "+earthBand)
+	s = strings.ReplaceAll(s, "with a mapping such as ", "with --column ")
+	s = strings.ReplaceAll(s, "(ingest.WithAllowUnterminatedStream; on the command line --allow-unterminated)", "(--allow-unterminated)")
+	return singleBatch.ReplaceAllString(s, "${1}1 record batch$2")
 }
+
+// singleBatch matches "1 record batches" (and not "11 record batches").
+var singleBatch = regexp.MustCompile(`(^|[^0-9.])1 record batches($|[^A-Za-z])`)
 
 // await runs f, which takes no context, in its own goroutine and returns
 // its result, or ctx's error as soon as ctx is done. An abandoned f runs

@@ -46,7 +46,7 @@ Examples:
 		},
 		run: func(ctx context.Context, fs *pflag.FlagSet, args []string, stdout, stderr io.Writer) error {
 			if len(args) != 1 {
-				return usageErrorf("inspect takes one FILE, got %d arguments", len(args))
+				return usageErrorf("inspect takes one FILE, got %s", plural(len(args), "argument"))
 			}
 			opts, err := rf.options(fs)
 			if err != nil {

@@ -122,7 +122,7 @@ func TestInspectErrors(t *testing.T) {
 		{"bad cell", []string{"inspect", bad}, 1, "undercurrent inspect: " + bad + `:3: column bz: "1oo.0" is not a number`},
 		{"absent file", []string{"inspect", filepath.Join(t.TempDir(), "none.csv")}, 1, "cannot open: no such file"},
 		{"bad origin", []string{"inspect", "--origin", "north", bad}, 2, "--origin"},
-		{"bad mapping", []string{"inspect", "--columns", "bq=B", bad}, 1, `column mapping "bq=B"`},
+		{"bad mapping", []string{"inspect", "--columns", "bq=B", bad}, 2, `--column "bq=B": want canonical=source`},
 	}
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {

@@ -53,6 +53,8 @@ type locateOptions struct {
 
 	// readOpts are the ingest options of the input flags (run sets them).
 	readOpts []ingest.Option
+	// baseOpts are the ingest options for the base log (readFlags.baseOptions).
+	baseOpts []ingest.Option
 
 	// set by check
 	nCount int // 0 = auto
@@ -198,20 +200,37 @@ by more than 0.1% near the peak, the run warns and suggests shorter windows
 or a slower walk.
 
 The input flags (--column, --unit, --delimiter, --header, --comment,
---frame, --origin, --decimal-comma, --drop-missing), the same for every
-command that reads logs, apply to the survey logs; the base log (--base)
-is read as it is, with missing values allowed (--iaga-baseline-frame
-applies to it). Each survey log's median |B| is checked against the
-Earth's field (about 20000-70000 nT, in every raw log): far from it, the
-run warns that the field's unit is probably wrong (fine for a log with the
-Earth's field removed); impossibly far (below 1 pT or above 0.1 T, as an
-Earth field in tesla read as nT) it refuses, unless --unit gives the
+--frame, --origin, --decimal-comma, --iaga-baseline-frame, --time-order,
+--allow-unterminated, --drop-missing), the same for every command that
+reads logs, apply to the survey logs. Of them, only --time-order,
+--allow-unterminated and --iaga-baseline-frame apply to the base log
+(--base) too; it comes from another instrument, usually in another format,
+so it is read with its own column names, units and layout, and with
+missing values allowed (its gaps are reported). A base log whose time goes
+backwards (with --time-order any) is put in time order, with a warning.
+Each survey log's median |B| is checked against the Earth's field (about
+22000-67000 nT at the surface, in every raw log): outside 15000-80000 nT
+the run warns that the field's unit is probably wrong (fine for a log with
+the Earth's field removed); impossibly far (below 1 pT or above 0.1 T, as
+an Earth field in tesla read as nT) it refuses, unless --unit gives the
 field's unit.
+
+Without --group-by every reading is fitted as one straight conductor with
+one current. When a log has a group column whose groups are traverses, or
+the readings run along the fitted line for more than 20 times its depth,
+the run warns and suggests --group-by. Without --despike, each log is
+checked for spikes (readings more than 10 robust standard deviations from
+the running median of their neighbours); when at least 0.1% of readings
+are spikes the run warns and suggests --despike. These warnings come first
+in the summary's, the result document's and the report's warnings.
 
 With -o DIR it writes results.json (the result document), results.csv,
 route.geojson and report.html (the crew report) into DIR; the directory is
-written whole or not at all, and its parent must exist. --json prints the
-result document on stdout. Without either it prints a summary.
+written whole or not at all, and its parent must exist. An existing DIR
+is replaced only when it holds nothing but those files: a DIR holding any
+other file is refused (a usage error, before any work), so that a mistyped
+-o cannot replace unrelated work. --json prints the result document on
+stdout. Without either it prints a summary.
 
 The estimates are not a verified locate: confirm before excavation by
 approved methods, treat every conductor as live; local codes and licensed
@@ -234,6 +253,7 @@ Examples:
 			if o.readOpts, err = o.read.options(fs); err != nil {
 				return err
 			}
+			o.baseOpts = o.read.baseOptions(fs)
 			start := time.Now()
 			doc, err := runLocate(ctx, o, args, progressOn(stderr))
 			if err != nil {
@@ -299,6 +319,12 @@ type survey struct {
 	groups   []*group
 	ac       bool
 	warnings []string
+	// alerts are warnings that the answer may be wrong (a route fitted
+	// as one line, spikes left in); they come first.
+	alerts []string
+	// groupWarned is set when a log's group column drew the --group-by
+	// warning (then the span check is not needed).
+	groupWarned bool
 }
 
 // runLocate reads, corrects, fits and analyses; progress, when not nil,
@@ -339,11 +365,22 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (*survey, 
 	var base *ingest.Samples
 	if o.base != "" {
 		var err error
-		if base, err = readSamples(ctx, o.base, ingest.WithAllowMissing(true), ingest.WithIAGABaselineFrame(o.read.iagaBaseline)); err != nil {
+		bopts := o.baseOpts
+		if bopts == nil {
+			bopts = o.read.baseOptions(nil)
+		}
+		if base, err = readSamples(ctx, o.base, bopts...); err != nil {
 			return nil, err
 		}
 		doc.Inputs = append(doc.Inputs, fileInput("base", o.base, base.Len()))
-		sv.warnings = append(sv.warnings, base.Warnings...)
+		for _, w := range base.Warnings {
+			sv.warnings = append(sv.warnings, cliWording(w))
+		}
+		// The base correction interpolates in time: a base log read with
+		// --time-order any or per-group is put in time order first.
+		if back, _ := sortByTime(base); back > 0 {
+			sv.warnings = append(sv.warnings, fmt.Sprintf("%s: time goes backwards at %s (--time-order %s): the base log was put in time order for the base correction", o.base, plural(back, "row"), o.read.timeOrder))
+		}
 	}
 	opts := append([]ingest.Option(nil), o.readOpts...)
 	if o.groupBy != "" && o.groupBy != ingest.ColGroup {
@@ -377,6 +414,21 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (*survey, 
 		if s.Frame == ingest.FrameSensor {
 			if err := calibrate.Tilt(s, nil); err != nil {
 				return nil, err
+			}
+		}
+		if o.groupBy == "" {
+			if w := groupColumnWarning(path, groupColumnName(o), s); w != "" {
+				sv.alerts = append(sv.alerts, w)
+				sv.groupWarned = true
+			}
+		}
+		if !o.despike {
+			w, err := spikeWarning(path, s)
+			if err != nil {
+				return nil, fmt.Errorf("%s: %w", path, err)
+			}
+			if w != "" {
+				sv.alerts = append(sv.alerts, w)
 			}
 		}
 		if o.despike {
@@ -634,7 +686,13 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 		return nil, err
 	}
 	head := *sv.doc
-	head.Warnings = append(head.Warnings, sv.warnings...)
+	alerts := append([]string(nil), sv.alerts...)
+	if o.groupBy == "" && !sv.groupWarned {
+		if w := spanWarning(sv); w != "" {
+			alerts = append(alerts, w)
+		}
+	}
+	head.Warnings = append(head.Warnings, leadWarnings(alerts, sv.warnings)...)
 	if w := travelWarning(sv); w != "" {
 		head.Warnings = append(head.Warnings, w)
 	}
@@ -809,14 +867,14 @@ func checkOutDir(dir string, keep []string) error {
 		return nil
 	}
 	if err != nil {
-		return fmt.Errorf("-o %s: %w", dir, err)
+		return usageErrorf("-o %s: %v", dir, err)
 	}
 	if !fi.IsDir() {
 		return usageErrorf("-o %s: exists and is not a directory", dir)
 	}
 	entries, err := os.ReadDir(dir)
 	if err != nil {
-		return fmt.Errorf("-o %s: %w", dir, err)
+		return usageErrorf("-o %s: %v", dir, err)
 	}
 	allowed := map[string]bool{}
 	for _, n := range append(append([]string(nil), resultFiles...), keep...) {
@@ -900,16 +958,19 @@ func writeResults(ctx context.Context, dir string, doc *report.Document, keep []
 }
 
 // checkParentDir refuses an output path whose directory does not exist.
+// Like every problem with an output location found before the work (see
+// checkOutDir), it is a usage error (exit status 2): the flag's value
+// names a place that cannot be used.
 func checkParentDir(path string) error {
 	parent := filepath.Dir(filepath.Clean(path))
 	fi, err := os.Stat(parent)
 	switch {
 	case errors.Is(err, os.ErrNotExist):
-		return fmt.Errorf("output directory %s does not exist", parent)
+		return usageErrorf("output directory %s does not exist", parent)
 	case err != nil:
-		return fmt.Errorf("output directory %s: %w", parent, err)
+		return usageErrorf("output directory %s: %v", parent, err)
 	case !fi.IsDir():
-		return fmt.Errorf("output directory %s is not a directory", parent)
+		return usageErrorf("output directory %s is not a directory", parent)
 	}
 	return nil
 }

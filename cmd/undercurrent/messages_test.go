@@ -51,17 +51,18 @@ func TestCommandErrorsClean(t *testing.T) {
 	cases := []struct {
 		args []string
 		want string // the whole of stderr
+		code int
 	}{
 		{[]string{"convert", "--strict", holes, filepath.Join(dir, "h.csv")},
-			"undercurrent convert: " + holes + ":3: column bx: missing value (empty cell); --strict refuses missing values (without it they are carried over)\n"},
+			"undercurrent convert: " + holes + ":3: column bx: missing value (empty cell); --strict refuses missing values (without it they are carried over)\n", 1},
 		{[]string{"convert", log, filepath.Join(dir, "nodir", "x.csv")},
-			"undercurrent convert: OUT " + filepath.Join(dir, "nodir", "x.csv") + ": output directory " + filepath.Join(dir, "nodir") + " does not exist\n"},
+			"undercurrent convert: OUT " + filepath.Join(dir, "nodir", "x.csv") + ": output directory " + filepath.Join(dir, "nodir") + " does not exist\n" + `run "undercurrent help convert" for usage` + "\n", 2},
 		{[]string{"locate", "-o", filepath.Join(dir, "nodir", "res"), log},
-			"undercurrent locate: -o " + filepath.Join(dir, "nodir", "res") + ": output directory " + filepath.Join(dir, "nodir") + " does not exist\n"},
+			"undercurrent locate: -o " + filepath.Join(dir, "nodir", "res") + ": output directory " + filepath.Join(dir, "nodir") + " does not exist\n" + `run "undercurrent help locate" for usage` + "\n", 2},
 	}
 	for _, tc := range cases {
 		code, _, errOut := cli(t, tc.args...)
-		if code != 1 || errOut != tc.want {
+		if code != tc.code || errOut != tc.want {
 			t.Errorf("%s: exit %d, stderr\n %q\nwant\n %q", strings.Join(tc.args, " "), code, errOut, tc.want)
 		}
 	}

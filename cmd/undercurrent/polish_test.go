@@ -112,8 +112,9 @@ func TestOutputExtensionsAndDirectories(t *testing.T) {
 		{"demo", "-o", filepath.Join(missing, "demo")},
 		{"calibrate", "--zero", log, "-o", filepath.Join(missing, "cal.json")},
 	} {
-		if code, _, errOut := cli(t, args...); code != 1 || !strings.Contains(errOut, "output directory "+missing+" does not exist") {
-			t.Errorf("%s: exit %d, stderr %q; want the missing directory named", args[0], code, errOut)
+		// A usage error (2), as every output location refused before the work.
+		if code, _, errOut := cli(t, args...); code != 2 || !strings.Contains(errOut, "output directory "+missing+" does not exist") {
+			t.Errorf("%s: exit %d, stderr %q; want a usage error naming the missing directory", args[0], code, errOut)
 		}
 	}
 	if _, err := os.Stat(filepath.Join(dir, "no")); !os.IsNotExist(err) {

@@ -5,6 +5,8 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"math"
+	"strconv"
 	"time"
 
 	"github.com/nats-io/nats.go/jetstream"
@@ -38,10 +40,15 @@ func init() {
 		summary: "publish a recorded log as live sensor messages (tests, demos, re-processing)",
 		long: `Replay reads a log (any format undercurrent reads) and publishes it to the
 broker as live sensor batches on uc.data.ASSET.SENSOR, paced by --speed.
-The log's group column names the sensor of each row (or give --sensor for a
-log of one sensor); fields are the sensor's own readings, and positions
-come from the site file, not the log. Each batch is stored once even if the
-replay is repeated (message ids), so an interrupted replay can be run again.
+The log's group column names the sensor of each row (or give --sensor for
+a log of one sensor); fields are the sensor's own readings, and positions
+come from the site file, not the log. Time must run forward within each
+sensor's rows, while the rows of different sensors may interleave or
+follow one another (the default --time-order here is per-group); with
+--time-order any the rows are put in time order first, with a warning. A
+sensor may not have two readings at one time. Each batch is stored once
+even if the replay is repeated (message ids), so an interrupted replay can
+be run again.
 
 Examples:
   undercurrent replay fenwick-2025-11-30.arrows --asset fenwick-lane --speed 1
@@ -62,6 +69,10 @@ Examples:
 			fs.DurationVar(&o.wait, "wait", 10*time.Second, "wait up to `DURATION` for the broker's data stream (created by serve)")
 			o.read.add(fs)
 			o.read.addMissing(fs)
+			// The broker needs each sensor's readings in order, not the
+			// whole log's (replayBatches).
+			o.read.timeOrder = "per-group"
+			fs.Lookup("time-order").DefValue = "per-group"
 		},
 		run: func(ctx context.Context, fs *pflag.FlagSet, args []string, stdout, stderr io.Writer) error {
 			return runReplay(ctx, &o, fs, args, stdout)
@@ -71,7 +82,7 @@ Examples:
 
 func runReplay(ctx context.Context, o *replayOptions, fs *pflag.FlagSet, args []string, stdout io.Writer) error {
 	if len(args) != 1 {
-		return usageErrorf("replay takes one LOG (got %d arguments)", len(args))
+		return usageErrorf("replay takes one LOG, got %s", plural(len(args), "argument"))
 	}
 	if o.asset == "" {
 		return usageErrorf("--asset is required")
@@ -92,21 +103,12 @@ func runReplay(ctx context.Context, o *replayOptions, fs *pflag.FlagSet, args []
 	if o.now && o.shift != 0 {
 		return usageErrorf("give --now or --shift, not both")
 	}
-	opts, err := o.read.options(fs)
-	if err != nil {
-		return err
-	}
-	opts = append(opts, ingest.WithAllowBackwards(true)) // rows of several sensors interleave
-	s, warns, err := o.read.readLog(ctx, args[0], opts, false)
+	batches, warns, err := replayBatches(ctx, o, fs, args[0])
 	if err != nil {
 		return err
 	}
 	for _, w := range warns {
 		fmt.Fprintf(stdout, "warning: %s\n", w)
-	}
-	batches, err := broker.SplitSamples(s, o.asset, o.sensor, o.batch.Seconds())
-	if err != nil {
-		return err
 	}
 	nc, err := broker.Connect(o.broker, "undercurrent replay", broker.Auth{User: o.user, Password: o.password, Token: o.token})
 	if err != nil {
@@ -130,6 +132,81 @@ func runReplay(ctx context.Context, o *replayOptions, fs *pflag.FlagSet, args []
 	}
 	fmt.Fprintf(stdout, "replayed %d samples in %d batches for asset %s, sensors %v, times %.3f to %.3f (%d already stored)\n",
 		st.Samples, st.Batches, o.asset, st.Sensors, st.From, st.To, st.Duplicates)
+	return nil
+}
+
+// replayBatches reads the log and splits it into the sensors' batches.
+//
+// The live pipeline needs each sensor's readings in time order, one per
+// time; rows of different sensors may interleave or follow one another.
+// So replay's default time order is per-group (the group column names the
+// sensor), and --time-order ordered or any may be given: with any, the
+// rows are put in time order (a stable sort) with a warning. A sensor
+// with two readings at one time is refused here, naming the data rows,
+// before broker.SplitSamples would refuse it in its own words.
+func replayBatches(ctx context.Context, o *replayOptions, fs *pflag.FlagSet, path string) ([]*broker.Batch, []string, error) {
+	opts, err := o.read.options(fs)
+	if err != nil {
+		return nil, nil, err
+	}
+	order := ingest.TimeOrderedPerGroup
+	if fs != nil && fs.Changed("time-order") {
+		order, _ = ingest.ParseTimeOrder(o.read.timeOrder) // checked by options
+	} else {
+		opts = append(opts, ingest.WithTimeOrder(order))
+	}
+	s, warns, err := o.read.readLog(ctx, path, opts, false)
+	if err != nil {
+		return nil, nil, err
+	}
+	orig := make([]int, s.Len())
+	for i := range orig {
+		orig[i] = i
+	}
+	if order == ingest.TimeAnyOrder {
+		var back int
+		if back, orig = sortByTime(s); back > 0 {
+			warns = append(warns, fmt.Sprintf("%s: time goes backwards at %s (--time-order any): the rows were put in time order for the live pipeline", path, plural(back, "row")))
+		}
+	}
+	if err := repeatedTimes(path, s, o.sensor, orig); err != nil {
+		return nil, nil, err
+	}
+	batches, err := broker.SplitSamples(s, o.asset, o.sensor, o.batch.Seconds())
+	if err != nil {
+		return nil, nil, err
+	}
+	return batches, warns, nil
+}
+
+// repeatedTimes refuses a sensor with two readings at one time (after s
+// was put in time order, orig giving each row's place in the file), which
+// the live pipeline cannot take. Rows are counted from 1 among the data
+// rows (without the header, comment lines and rows dropped by
+// --drop-missing); times are printed in full.
+func repeatedTimes(path string, s *ingest.Samples, sensor string, orig []int) error {
+	last := map[string]int{}
+	for i := range s.Len() {
+		if math.IsNaN(s.Time[i]) || math.IsNaN(s.Bx[i]) || math.IsNaN(s.By[i]) || math.IsNaN(s.Bz[i]) {
+			continue // broker.SplitSamples skips incomplete rows
+		}
+		name := sensor
+		if s.Group != nil {
+			if sensor != "" && s.Group[i] != sensor {
+				continue
+			}
+			name = s.Group[i]
+		}
+		if j, ok := last[name]; ok && s.Time[i] == s.Time[j] {
+			a, b := min(orig[i], orig[j])+1, max(orig[i], orig[j])+1
+			who := ""
+			if s.Group != nil {
+				who = fmt.Sprintf(" of sensor %q", name)
+			}
+			return fmt.Errorf("%s: data rows %d and %d%s have the same time, %s: the live pipeline takes one reading per sensor at a time; remove the repeated row", path, a, b, who, strconv.FormatFloat(s.Time[i], 'f', -1, 64))
+		}
+		last[name] = i
+	}
 	return nil
 }
 

@@ -52,7 +52,7 @@ Examples:
 		},
 		run: func(ctx context.Context, fs *pflag.FlagSet, args []string, stdout, stderr io.Writer) error {
 			if len(args) != 1 {
-				return usageErrorf("want one SCENARIO file, got %d arguments", len(args))
+				return usageErrorf("simulate takes one SCENARIO file, got %s", plural(len(args), "argument"))
 			}
 			if out == "" {
 				return usageErrorf("missing -o LOG: where to write the log")

@@ -100,11 +100,11 @@ func TestSimulateErrors(t *testing.T) {
 		code int
 		want string
 	}{
-		{"no scenario", []string{"-o", filepath.Join(dir, "x.csv")}, 2, "want one SCENARIO"},
+		{"no scenario", []string{"-o", filepath.Join(dir, "x.csv")}, 2, "takes one SCENARIO file, got 0 arguments"},
 		{"no output", []string{good}, 2, "missing -o"},
 		{"bad extension", []string{good, "-o", filepath.Join(dir, "x.xlsx")}, 2, `".xlsx"`},
-		{"missing directory", []string{good, "-o", filepath.Join(dir, "nodir", "x.csv")}, 1, "output directory " + filepath.Join(dir, "nodir") + " does not exist"},
-		{"missing truth directory", []string{good, "-o", filepath.Join(dir, "x.csv"), "--truth", filepath.Join(dir, "nodir", "t.csv")}, 1, "output directory " + filepath.Join(dir, "nodir") + " does not exist"},
+		{"missing directory", []string{good, "-o", filepath.Join(dir, "nodir", "x.csv")}, 2, "output directory " + filepath.Join(dir, "nodir") + " does not exist"},
+		{"missing truth directory", []string{good, "-o", filepath.Join(dir, "x.csv"), "--truth", filepath.Join(dir, "nodir", "t.csv")}, 2, "output directory " + filepath.Join(dir, "nodir") + " does not exist"},
 		{"no extension", []string{good, "-o", filepath.Join(dir, "x")}, 2, "no extension"},
 		{"bad scenario", []string{bad, "-o", filepath.Join(dir, "x.csv")}, 1, `bad.toml:4:8: conductor 1 (""): unknown kind "wire"`},
 		{"missing scenario", []string{filepath.Join(dir, "none.toml"), "-o", filepath.Join(dir, "x.csv")}, 1, "none.toml"},

@@ -74,7 +74,7 @@ func TestLocateChecksFieldUnits(t *testing.T) {
 	micro := writeScaledLog(t, dir, "micro.csv", "_nT", 1e-3)
 	res := filepath.Join(dir, "micro-res")
 	code, out, errOut = cli(t, "locate", "--group-by", "group", "-o", res, micro)
-	if code != 0 || !strings.Contains(out, "warning: "+micro+": field: median |B| is") || !strings.Contains(out, "probably in uT") {
+	if code != 0 || !strings.Contains(out, "warning: "+micro+": median |B| is") || !strings.Contains(out, "probably in uT") {
 		t.Errorf("microtesla under nT labels: exit %d, stdout %q, stderr %q; want a fit with the warning", code, out, errOut)
 	}
 	data, err := os.ReadFile(filepath.Join(res, "results.json"))
@@ -148,7 +148,7 @@ func TestCalibrateAndConvertCheckFieldUnits(t *testing.T) {
 	}
 	conv := filepath.Join(dir, "spin-tesla.parquet")
 	code, _, errOut = runCmd("convert", spinT, conv)
-	if code != 0 || !strings.Contains(errOut, "warning: "+spinT+": field: median |B|") || !strings.Contains(errOut, "probably in T") {
+	if code != 0 || !strings.Contains(errOut, "warning: "+spinT+": median |B|") || !strings.Contains(errOut, "probably in T") {
 		t.Errorf("convert of a log in tesla: exit %d, stderr %q; want a warning", code, errOut)
 	}
 	if _, err := os.Stat(conv); err != nil {

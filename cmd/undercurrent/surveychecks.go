@@ -1,0 +1,181 @@
+package main
+
+import (
+	"fmt"
+	"math"
+	"strings"
+
+	"undercurrent/calibrate"
+	"undercurrent/ingest"
+)
+
+// Checks of a survey that catch a confident wrong answer: a whole route
+// fitted as one straight line because --group-by was left out, and spikes
+// left in the readings because --despike was.
+
+// spikeSigmas is how far, in robust standard deviations, a reading must
+// depart from the running median of its neighbours to count as a spike
+// for the warning. It is twice calibrate.Despike's default cut-off, so
+// that the warning does not fire on noise: for Gaussian noise a departure
+// of 10 sigma has a probability of about 1.5e-23 (the normal tail,
+// erfc(10/sqrt 2)), and even with the window's noisy scale estimate the
+// clean simulated surveys in the tests show none.
+const spikeSigmas = 10
+
+// spikeFraction is the share of readings that must be spikes for the
+// warning: one spike in a thousand readings. A few spikes among thousands
+// of readings barely move a least-squares fit; 1% of readings a thousand
+// times the noise can move it by more than the signal (a 2% share in the
+// Kestrel Moor survey takes its current from 1.8 A to 0.17 A).
+const spikeFraction = 1e-3
+
+// spikeWarning runs the Hampel filter that --despike uses, with the
+// stricter spikeSigmas cut-off, over each run of rows of one group (or
+// the whole log), and returns a warning when at least spikeFraction of
+// the readings (and at least two) are spikes; "" otherwise.
+func spikeWarning(path string, s *ingest.Samples) (string, error) {
+	n := s.Len()
+	if n == 0 {
+		return "", nil
+	}
+	set := &calibrate.DespikeSettings{Threshold: spikeSigmas}
+	spikes := 0
+	for lo := 0; lo < n; {
+		hi := lo + 1
+		for s.Group != nil && hi < n && s.Group[hi] == s.Group[lo] {
+			hi++
+		}
+		if s.Group == nil {
+			hi = n
+		}
+		flag, _, _, err := calibrate.FindSpikes([][]float64{s.Bx[lo:hi], s.By[lo:hi], s.Bz[lo:hi]}, set)
+		if err != nil {
+			return "", err
+		}
+		for i, f := range flag {
+			// Missing values are not spikes (FindSpikes marks them too).
+			if f && !math.IsNaN(s.Bx[lo+i]) && !math.IsNaN(s.By[lo+i]) && !math.IsNaN(s.Bz[lo+i]) {
+				spikes++
+			}
+		}
+		lo = hi
+	}
+	if spikes < 2 || float64(spikes) < spikeFraction*float64(n) {
+		return "", nil
+	}
+	return fmt.Sprintf("%s: spikes in %s of readings (%d of %d depart from the running median of their neighbours by more than %d robust standard deviations): they can pull the fit far off; rerun with --despike",
+		path, percent(spikes, n), spikes, n, spikeSigmas), nil
+}
+
+// percent words k of n as a percentage to two significant digits.
+func percent(k, n int) string {
+	p := 100 * float64(k) / float64(n)
+	if p >= 10 {
+		return fmt.Sprintf("%.0f%%", p)
+	}
+	return fmt.Sprintf("%.2g%%", p)
+}
+
+// groupColumnWarning returns a warning when a log has a group column whose
+// values are traverses (at least two groups whose readings move), but
+// --group-by was not given, so that every reading was fitted as one straight
+// conductor with one current; "" otherwise. name is the group column's
+// name in the file.
+func groupColumnWarning(path, name string, s *ingest.Samples) string {
+	if s.Group == nil || s.X == nil {
+		return ""
+	}
+	type extent struct{ lo, hi [3]float64 }
+	ext := map[string]*extent{}
+	var order []string
+	for i, g := range s.Group {
+		p := [3]float64{s.X[i], s.Y[i], s.Z[i]}
+		e := ext[g]
+		if e == nil {
+			e = &extent{lo: p, hi: p}
+			ext[g] = e
+			order = append(order, g)
+		}
+		for k := range 3 {
+			e.lo[k], e.hi[k] = math.Min(e.lo[k], p[k]), math.Max(e.hi[k], p[k])
+		}
+	}
+	moving := 0
+	for _, e := range ext {
+		if math.Hypot(e.hi[0]-e.lo[0], e.hi[1]-e.lo[1]) > 0.01 {
+			moving++
+		}
+	}
+	if len(order) < 2 || moving < 2 {
+		return ""
+	}
+	values := order[0] + ", " + order[1]
+	switch len(order) {
+	case 2:
+	case 3:
+		values += ", " + order[2]
+	default:
+		values += " ... " + order[len(order)-1]
+	}
+	return fmt.Sprintf("%s: the log has a group column %q with %d values (%s), but without --group-by every reading was fitted as one straight conductor with one current, which a route that bends, changes depth or loses current does not fit: fit each traverse with --group-by %s",
+		path, name, len(order), values, name)
+}
+
+// spanRatio is how many times its distance below the sensors a fitted line
+// may run along the readings before a fit without --group-by is
+// suspect: a traverse across a conductor reaches a few times the depth to
+// either side (the field of a line falls to a tenth at three times its
+// distance), not twenty.
+const spanRatio = 20
+
+// spanWarning returns a warning when locate ran without --group-by and
+// the readings run along the fitted line for more than spanRatio times the
+// line's distance below the sensors: a route surveyed along its length,
+// fitted as one straight line; "" otherwise.
+func spanWarning(sv *survey) string {
+	if len(sv.groups) != 1 {
+		return ""
+	}
+	g := sv.groups[0]
+	if g.res == nil || len(g.res.Sources) == 0 || len(g.points) == 0 {
+		return ""
+	}
+	src := g.res.Sources[0]
+	if src.Kind != "line" {
+		return ""
+	}
+	lo, hi, zm := math.Inf(1), math.Inf(-1), 0.0
+	for _, p := range g.points {
+		a := (p[0]-src.Point[0])*src.Dir[0] + (p[1]-src.Point[1])*src.Dir[1] + (p[2]-src.Point[2])*src.Dir[2]
+		lo, hi = math.Min(lo, a), math.Max(hi, a)
+		zm += p[2]
+	}
+	zm /= float64(len(g.points))
+	h := math.Max(zm-src.Point[2], 0.05)
+	span := hi - lo
+	if span <= spanRatio*h {
+		return ""
+	}
+	return fmt.Sprintf("the readings run %.0f m along the fitted line, %.0f times its distance of %.2f m below the sensors: every reading was fitted as one straight conductor with one current, which a route that bends, changes depth or loses current does not fit; if the log holds several traverses, give the column that tells them apart with --group-by",
+		span, span/h, h)
+}
+
+// groupColumnName is the file's name of the group column: the one mapped
+// with --column group=NAME, else "group".
+func groupColumnName(o *locateOptions) string {
+	for _, c := range append(append([]string(nil), o.read.columns...), o.read.columnsOld...) {
+		for _, p := range strings.Split(c, ",") {
+			if k, v, ok := strings.Cut(p, "="); ok && strings.EqualFold(strings.TrimSpace(k), ingest.ColGroup) {
+				return strings.TrimSpace(v)
+			}
+		}
+	}
+	return ingest.ColGroup
+}
+
+// leadWarnings puts the warnings that say the answer may be wrong (alerts)
+// before the others.
+func leadWarnings(alerts, rest []string) []string {
+	out := append([]string(nil), alerts...)
+	return append(out, rest...)
+}
