@@ -98,9 +98,13 @@ Examples:
 			if err != nil {
 				return err
 			}
+			// sensor is the sensor the logs name in their metadata, kept in
+			// the calibration file so that locate can tell a log of another
+			// sensor (Calibration.Check).
+			var sensor string
 			read := func(role, path string) ([][3]float64, calibrate.Input, error) {
 				// A zero-field log is near zero by design: no unit check.
-				return readCalibrationLog(ctx, &rf, opts, role, path, role != "zero", stderr)
+				return readCalibrationLog(ctx, &rf, opts, role, path, role != "zero", &sensor, stderr)
 			}
 			if show != "" {
 				cal, err := calibrate.Load(show)
@@ -153,6 +157,7 @@ Examples:
 			if err := ctx.Err(); err != nil {
 				return err
 			}
+			cal.Sensor = sensor
 			if out != "" {
 				if err := cal.Save(out); err != nil {
 					return err
@@ -183,10 +188,16 @@ func inFile(path string, err error) error {
 // the input flags' options, prints the warnings about it (missing rows
 // dropped, a field unit that looks wrong when checkUnits) and records the
 // file with its checksum.
-func readCalibrationLog(ctx context.Context, rf *readFlags, opts []ingest.Option, role, path string, checkUnits bool, stderr io.Writer) ([][3]float64, calibrate.Input, error) {
+func readCalibrationLog(ctx context.Context, rf *readFlags, opts []ingest.Option, role, path string, checkUnits bool, sensor *string, stderr io.Writer) ([][3]float64, calibrate.Input, error) {
 	s, warns, err := rf.readLog(ctx, path, opts, checkUnits)
 	if err != nil {
 		return nil, calibrate.Input{}, err
+	}
+	if name := calibrate.SensorName(s); name != "" {
+		if *sensor != "" && *sensor != name {
+			return nil, calibrate.Input{}, fmt.Errorf("%s names sensor %q, but the other log names %q: a calibration is for one sensor", path, name, *sensor)
+		}
+		*sensor = name
 	}
 	for _, w := range warns {
 		fmt.Fprintf(stderr, "warning: %s\n", w)
@@ -206,6 +217,9 @@ func printCalibration(w io.Writer, cal *calibrate.Calibration, asJSON bool) erro
 		return enc.Encode(cal)
 	}
 	fmt.Fprintf(w, "method      %s (file version %d, made %s)\n", cal.Method, cal.Version, cal.Created.Format("2006-01-02 15:04:05Z"))
+	if cal.Sensor != "" {
+		fmt.Fprintf(w, "sensor      %s\n", cal.Sensor)
+	}
 	for _, in := range cal.Inputs {
 		fmt.Fprintf(w, "input       %s: %s, %d readings, sha256 %s\n", in.Role, in.File, in.Samples, in.SHA256)
 	}

@@ -407,6 +407,9 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (*survey, 
 			doc.Site = s.Meta["site"]
 		}
 		if cal != nil {
+			// A calibration of another sensor, or a log whose corrected
+			// field disagrees with the calibration's reference.
+			sv.warnings = append(sv.warnings, cal.Check(s)...)
 			if err := cal.Apply(s); err != nil {
 				return nil, fmt.Errorf("%s: %w", path, err)
 			}

@@ -60,7 +60,7 @@ func TestLocateBaseTakesReadFlags(t *testing.T) {
 		t.Fatal(err)
 	}
 	code, _, errOut := cli(t, "locate", "--group-by", "group", "--base", cut, survey)
-	if code != 1 || !strings.Contains(errOut, "bcut.arrows") || !strings.Contains(errOut, "(--allow-unterminated)") || strings.Contains(errOut, "ingest.With") {
+	if code != 1 || !strings.Contains(errOut, "bcut.arrows") || !strings.Contains(errOut, "--allow-unterminated") || strings.Contains(errOut, "ingest.With") {
 		t.Errorf("cut base stream: exit %d, %q: want a refusal pointing at --allow-unterminated", code, errOut)
 	}
 	out := mustCLI(t, "locate", "--group-by", "group", "--allow-unterminated", "--base", cut, survey)
