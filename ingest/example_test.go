@@ -136,7 +136,7 @@ func ExampleInspect() {
 	fmt.Println(in.Warnings[0])
 	// Output:
 	// 4 1 1
-	// field: median |B| is 0.04981 nT, far from an Earth field of about 20000-70000 nT; if these are total-field readings the columns are probably in mT (try units bx=mT,by=mT,bz=mT)
+	// field: median |B| is 0.04981 nT, outside the Earth's field band of 15000-80000 nT; if these are total-field readings the columns are probably in mT (try units bx=mT,by=mT,bz=mT)
 }
 
 // WriteReader streams one format into another without holding the log in

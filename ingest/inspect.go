@@ -240,7 +240,7 @@ func guessUnits(pl *plan, in *Inspection, mags []float64) []string {
 			for _, u := range []string{"T", "mT", "G", "uT", "nT", "pT"} {
 				f, _ := unitScale(kindField, u)
 				if u != pl.unit[cBx] && raw*f >= earthMin && raw*f <= earthMax {
-					w = append(w, fmt.Sprintf("field: median |B| is %.4g %s, far from an Earth field of about 20000-70000 nT; "+
+					w = append(w, fmt.Sprintf("field: median |B| is %.4g %s, outside the Earth's field band of 15000-80000 nT; "+
 						"if these are total-field readings the columns are probably in %s (try units bx=%s,by=%s,bz=%s)",
 						raw, pl.unit[cBx], u, u, u, u))
 					break

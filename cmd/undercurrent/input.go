@@ -470,15 +470,12 @@ func inspectCtx(ctx context.Context, path string, opts ...ingest.Option) (*inges
 // cliWording turns ingest's suggestions ("try units bx=T", "try columns
 // lon=...") into the flags that give them.
 //
-// It also words ingest's messages for the command line: the Earth's band is the one the
-// check uses (earthMinNT, earthMaxNT), a mapping is given with --column,
-// an option is named by its flag, and a count of one takes the singular.
+// It also words ingest's messages for the command line: a mapping is given
+// with --column, and a count of one takes the singular.
 func cliWording(s string) string {
 	s = strings.ReplaceAll(s, "(try units ", "(try --unit ")
 	s = strings.ReplaceAll(s, "(try columns ", "(try --column ")
-	s = strings.ReplaceAll(s, "far from an Earth field of about 20000-70000 nT", "outside "+earthBand)
-	s = strings.ReplaceAll(s, "with a mapping such as ", "with --column ")
-	s = strings.ReplaceAll(s, "(ingest.WithAllowUnterminatedStream; on the command line --allow-unterminated)", "(--allow-unterminated)")
+	s = strings.ReplaceAll(s, "with a column mapping such as bx=NAME, on the command line --column bx=NAME", "with --column bx=NAME")
 	return singleBatch.ReplaceAllString(s, "${1}1 record batch$2")
 }
 
