@@ -70,8 +70,8 @@ var resultFiles = []string{report.FileJSON, report.FileCSV, report.FileGeoJSON, 
 func (o *locateOptions) setFlags(fs *pflag.FlagSet) {
 	fs.StringVar(&o.calibration, "calibration", "", "apply the sensor calibration in `CAL.json` (from undercurrent calibrate)")
 	fs.StringVar(&o.base, "base", "", "subtract the diurnal variation recorded by the base station log `BASE` (any log format, IAGA-2002 too)")
-	fs.Float64Var(&o.freq, "freq", 0, "demodulate the AC field at `HZ` (50, 60, 16.7...) and fit RMS currents with phase; without it the DC field is fitted")
-	fs.Float64Var(&o.window, "window", 0, "AC demodulation window, `S` seconds (default ten cycles)")
+	fs.Float64Var(&o.freq, "freq", 0, "demodulate the AC field at `HZ` (50, 60, 16.7, 512...) and fit RMS currents with phase; the field's own frequency is then estimated from the log, and if it is off (a grid at 50.1 Hz) the log is demodulated at the estimate, with a warning saying so (too far off, it refuses and names the frequency found); without --freq the DC field is fitted (no frequency is estimated and AC is not looked for)")
+	fs.Float64Var(&o.window, "window", 0, "AC demodulation window, `S` seconds (default: ten cycles at 50 or 60 Hz; at any other frequency ten cycles or 0.1 s, whichever is longer, rounded up to a multiple of 0.1 s, so that the window holds whole cycles of the 50 or 60 Hz mains and they do not leak in)")
 	fs.StringVar(&o.count, "count", "auto", "number of line conductors per fit, `N` (1-4) or auto")
 	fs.StringVar(&o.groupBy, "group-by", "", "fit each value of column `COL` separately (a traverse, a sensor, a time window) and build the along-route profile from the groups")
 	fs.BoolVar(&o.json, "json", false, "print the result document (JSON) on stdout")
@@ -511,21 +511,17 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 		}
 		return nil
 	}
-	res, err := calibrate.Demodulate(s, &calibrate.DemodSettings{Freq: o.freq, Window: o.window})
+	res, win, warns, err := demodulateAC(o, s) // acchecks.go
 	if err != nil {
 		return err
 	}
-	for _, w := range res.Warnings {
+	for _, w := range warns {
 		sv.warnings = append(sv.warnings, s.Source+": "+w)
 	}
 	if len(res.Windows) == 0 {
 		return fmt.Errorf("%s: no complete demodulation window: the log (or each group) is shorter than the window", s.Source)
 	}
 	if sv.doc.Signal.WindowS == 0 {
-		win := o.window
-		if win == 0 {
-			win = 10 / o.freq // calibrate's default: ten cycles
-		}
 		sv.doc.Signal = report.Signal{Mode: report.SignalAC, FrequencyHz: res.Freq, WindowS: win}
 	}
 	for _, w := range res.Windows {

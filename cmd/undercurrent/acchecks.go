@@ -1,0 +1,352 @@
+package main
+
+import (
+	"fmt"
+	"math"
+	"sort"
+	"strings"
+
+	"undercurrent/calibrate"
+	"undercurrent/ingest"
+)
+
+// AC demodulation for locate: the default window, and the check that the
+// field's frequency is the one given.
+//
+// The default window. At the mains frequency (50 or 60 Hz) it is ten cycles,
+// 0.2 s or 1/6 s, as calibrate's own default. At any other frequency (an
+// injected tracer, a harmonic, a railway's 16.7 Hz) the mains field is
+// usually far stronger than the signal, and a window that holds no whole
+// number of mains cycles lets it leak into the signal's phasor: a 512 Hz
+// fit over ten cycles (19.5 ms, about one mains cycle) read a 20 A cable's
+// 50 Hz field as milliampere conductors a few centimetres under the
+// sensors. So the default there is ten cycles of the signal or 0.1 s,
+// whichever is longer, rounded up to a whole multiple of 0.1 s: whole
+// cycles of 50 and 60 Hz and all their harmonics. Over whole cycles a mains
+// tone is orthogonal to the fit's constant, and its overlap with the
+// signal's sine and cosine is of order 1/(2π Δf T) (0.3% at 512 Hz in
+// 0.1 s, which the fit sees as noise), against order one over a fraction
+// of a cycle.
+//
+// The frequency check. Demodulating at --freq while the field runs at
+// another frequency turns every window's phasor by 360° × Δf × t: a grid
+// 0.1 Hz off nominal turns it 36° a second, so a traverse of a few seconds
+// averages the cable's field away (half the current, a wrong depth, a large
+// residual) while each window alone looks clean. After demodulating at
+// --freq, locate demodulates the same windows again with the frequency
+// fitted in each (calibrate's joint four-parameter fit of the three axes,
+// with the 3rd and 5th harmonics fitted alongside) and combines the windows
+// with a clear signal (estimateWindowFreq). When the estimate differs from
+// --freq by more than freqCheckSigmas of its sigma and by enough to turn the
+// phase more than freqCheckDegrees across the longest group, it
+// demodulates at the estimate instead (in windows of the same whole number
+// of cycles) and says so in a warning; from a log walked one way only it
+// does so only beyond freqCheckUntrustedHz, and below that warns (see
+// freqEstimate.trusted). Beyond a quarter of 1/window it refuses. Each
+// group's own frequency is then checked against the one used (groupWander).
+// Exact-frequency logs are demodulated exactly as before (the demo's
+// results do not change).
+
+const (
+	// mainsWindowStep is the step of the default window away from the
+	// mains frequency, s: whole cycles of 50 and 60 Hz.
+	mainsWindowStep = 0.1
+	// freqCheckSNR is the least |B|/sigma on a window's strongest axis for
+	// its frequency estimate to count.
+	freqCheckSNR = 20
+	// freqCheckMinWindows is the fewest such windows for a check.
+	freqCheckMinWindows = 3
+	// freqCheckSigmas is how many of its sigmas the estimate must be off
+	// --freq before locate acts on it.
+	freqCheckSigmas = 5
+	// freqCheckDegrees is the phase turn across the longest group that an
+	// error in the frequency may cause before locate acts on it.
+	freqCheckDegrees = 2
+	// freqCheckUntrustedHz is the offset, Hz, beyond which an estimate
+	// from windows all walked one way is taken as the grid's, not the
+	// walk's (freqEstimate.trusted): over twice the largest the walk leaves
+	// on a demo traverse (0.0055 Hz, a 20 A cable beside a 15 A one 135°
+	// apart in phase).
+	freqCheckUntrustedHz = 0.01
+)
+
+// defaultWindow is the demodulation window locate uses at freq Hz when
+// --window is not given (see above).
+func defaultWindow(freq float64) float64 {
+	if freq == 50 || freq == 60 {
+		return 10 / freq
+	}
+	w := math.Max(10/freq, mainsWindowStep)
+	// Round up to the step, forgiving the rounding of 10/freq.
+	n := math.Ceil(w/mainsWindowStep - 1e-9)
+	return n * mainsWindowStep
+}
+
+// freqEstimate is the field's frequency estimated from the windows.
+type freqEstimate struct {
+	freq, sigma float64
+	windows     int // windows used
+	// trusted is false when every window used was walked the same way: a
+	// window's phase also turns as the sensor walks where conductors of
+	// different phase overlap (by thousandths of a hertz in the demo's
+	// traverses), the same way on every traverse walked the same way and
+	// the opposite way on those walked back, so only a log walked both ways
+	// (or standing still) cancels it.
+	trusted bool
+}
+
+// freqMean is the inverse-variance mean of the per-window frequencies fs
+// with weights ws (1/sigma²), its sigma widened by the square root of the
+// reduced chi-square when they scatter more than their sigmas say. A
+// window whose fit wandered to another tone would pull the mean, so
+// estimates over 10 of their own sigmas from the median are dropped first.
+// ok is false with fewer than freqCheckMinWindows windows.
+func freqMean(fs, ws []float64) (mean, sigma float64, n int, ok bool) {
+	if len(fs) < freqCheckMinWindows {
+		return 0, 0, 0, false
+	}
+	sorted := append([]float64(nil), fs...)
+	sort.Float64s(sorted)
+	med := sorted[len(sorted)/2]
+	var sw, swf float64
+	for i, f := range fs {
+		if math.Abs(f-med)*math.Sqrt(ws[i]) <= 10 {
+			sw += ws[i]
+			swf += ws[i] * f
+			n++
+		}
+	}
+	if n < freqCheckMinWindows {
+		return 0, 0, 0, false
+	}
+	mean = swf / sw
+	var c2 float64
+	for i, f := range fs {
+		if d := f - med; math.Abs(d)*math.Sqrt(ws[i]) <= 10 {
+			c2 += (f - mean) * (f - mean) * ws[i]
+		}
+	}
+	return mean, math.Sqrt(math.Max(1, c2/float64(n-1)) / sw), n, true
+}
+
+// estimateWindowFreq combines the per-window frequencies of a
+// demodulation with EstimateFreq, from the windows with a clear signal
+// (freqCheckSNR on the strongest axis). Windows are sorted by the way the
+// sensor moved (the sign of their travel along the survey's main walking
+// direction, or standing still): with windows walked both ways the
+// estimate is the mean of the two ways' (cancelling the walking's share,
+// see freqEstimate.trusted); with the sensor still, theirs; else the mean
+// of all, not trusted. ok is false when too few windows qualify.
+func estimateWindowFreq(ws []calibrate.Window) (est freqEstimate, ok bool) {
+	// The main walking direction: the principal axis of the windows'
+	// horizontal travels.
+	var sxx, sxy, syy float64
+	for _, w := range ws {
+		x, y := w.Travel[0], w.Travel[1]
+		sxx += x * x
+		sxy += x * y
+		syy += y * y
+	}
+	th := 0.5 * math.Atan2(2*sxy, sxx-syy)
+	dx, dy := math.Cos(th), math.Sin(th)
+	var fs, wt [3][]float64 // still, one way, the other
+	var all, allW []float64
+	for _, w := range ws {
+		if !(w.FreqSigma > 0) || math.IsNaN(w.Freq) {
+			continue
+		}
+		snr := 0.0
+		for k := 0; k < 3; k++ {
+			if w.Sigma[k] > 0 {
+				snr = math.Max(snr, abs(w.B[k])/w.Sigma[k])
+			}
+		}
+		if snr < freqCheckSNR {
+			continue
+		}
+		wgt := 1 / (w.FreqSigma * w.FreqSigma)
+		c := 0
+		if a := w.Travel[0]*dx + w.Travel[1]*dy; math.Hypot(w.Travel[0], w.Travel[1]) >= stillTravel {
+			c = 1
+			if a < 0 {
+				c = 2
+			}
+		}
+		fs[c] = append(fs[c], w.Freq)
+		wt[c] = append(wt[c], wgt)
+		all = append(all, w.Freq)
+		allW = append(allW, wgt)
+	}
+	f1, s1, n1, ok1 := freqMean(fs[1], wt[1])
+	f2, s2, n2, ok2 := freqMean(fs[2], wt[2])
+	if ok1 && ok2 {
+		return freqEstimate{freq: (f1 + f2) / 2, sigma: math.Hypot(s1, s2) / 2, windows: n1 + n2, trusted: true}, true
+	}
+	if len(fs[1])+len(fs[2]) == 0 {
+		f, sg, n, ok := freqMean(fs[0], wt[0])
+		return freqEstimate{freq: f, sigma: sg, windows: n, trusted: true}, ok
+	}
+	f, sg, n, ok := freqMean(all, allW)
+	return freqEstimate{freq: f, sigma: sg, windows: n}, ok
+}
+
+// stillTravel is the horizontal half-travel, m, below which a window is
+// taken as standing still.
+const stillTravel = 1e-3
+
+func abs(z complex128) float64 { return math.Hypot(real(z), imag(z)) }
+
+// longestGroupSpan is the longest time, s, from the start of the first
+// window of a group to the end of its last (the stretch over which one
+// phase is fitted).
+func longestGroupSpan(ws []calibrate.Window, window float64) float64 {
+	lo, hi := map[string]float64{}, map[string]float64{}
+	for _, w := range ws {
+		if t, ok := lo[w.Group]; !ok || w.Time < t {
+			lo[w.Group] = w.Time
+		}
+		if t, ok := hi[w.Group]; !ok || w.Time > t {
+			hi[w.Group] = w.Time
+		}
+	}
+	var span float64
+	for g, t := range lo {
+		span = math.Max(span, hi[g]-t+window)
+	}
+	return span
+}
+
+// freqDecimals is the number of decimals that shows sigma to one or two
+// significant digits (at least two, at most six).
+func freqDecimals(sigma float64) int {
+	if !(sigma > 0) {
+		return 2
+	}
+	d := int(math.Ceil(-math.Log10(sigma)))
+	return min(6, max(2, d))
+}
+
+// demodulateAC demodulates s at o.freq with o.window (or defaultWindow),
+// checks the field's frequency against o.freq and, when it is off (see
+// above), demodulates at the estimate. It returns the result, the window
+// used and the warnings to report (without the log's name).
+func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, float64, []string, error) {
+	win := o.window
+	if win == 0 {
+		win = defaultWindow(o.freq)
+	}
+	res, err := calibrate.Demodulate(s, &calibrate.DemodSettings{Freq: o.freq, Window: win})
+	if err != nil {
+		return nil, 0, nil, err
+	}
+	if len(res.Windows) == 0 {
+		return res, win, res.Warnings, nil
+	}
+	// The mains' odd harmonics, locked to the fundamental, would pull every
+	// window's frequency the same way (the frequency column τ sin ωτ is not
+	// orthogonal to them even over whole cycles); fitted alongside, they do
+	// not enter the frequency step. Those at or above the Nyquist frequency
+	// are left out.
+	var fit *calibrate.DemodResult
+	for _, h := range [][]int{{3, 5}, {3}, nil} {
+		fit, err = calibrate.Demodulate(s, &calibrate.DemodSettings{Freq: o.freq, Window: win, EstimateFreq: true, Harmonics: h})
+		if err == nil {
+			break
+		}
+	}
+	if err != nil {
+		// The fixed-frequency demodulation went through; a failed check is
+		// worth a warning, not the run.
+		return res, win, append(res.Warnings, fmt.Sprintf("the AC frequency could not be checked (%v): the results assume the field runs at exactly %g Hz", err, o.freq)), nil
+	}
+	est, ok := estimateWindowFreq(fit.Windows)
+	if !ok {
+		return res, win, res.Warnings, nil
+	}
+	off := est.freq - o.freq
+	span := longestGroupSpan(res.Windows, win)
+	turn := 360 * math.Abs(off) * span
+	if math.Abs(off) <= freqCheckSigmas*est.sigma || turn <= freqCheckDegrees {
+		return res, win, appendNonEmpty(res.Warnings, groupWander(fit.Windows, o.freq, win)), nil
+	}
+	dec := freqDecimals(est.sigma)
+	if !est.trusted && math.Abs(off) <= freqCheckUntrustedHz {
+		// Walked one way only: the offset may be the walk's, not the grid's.
+		return res, win, append(res.Warnings, fmt.Sprintf("the windows' phase advances as if the AC field ran at %.*f ± %.*f Hz, not the %g Hz given (a turn of %.0f° across the longest group, %.1f s): the grid slightly off its frequency, or the phase changing along traverses all walked the same way where conductors of different phase overlap, which a log walked one way cannot tell apart; if the grid was off, rerun with --freq %.*f",
+			dec, est.freq, dec, est.sigma, o.freq, turn, span, dec, est.freq)), nil
+	}
+	// Beyond about a quarter of 1/window from --freq the windows' fits no
+	// longer converge reliably; an estimate out there is not to be trusted.
+	if math.Abs(off) > 0.25/win {
+		return nil, 0, nil, fmt.Errorf("%s: the AC field does not run at the %g Hz given: the windows' fitted frequencies average %.3f Hz, too far off for a %.3g s window to follow; give the field's frequency with --freq (about %.2f Hz)", s.Source, o.freq, est.freq, win, est.freq)
+	}
+	// A window of whole cycles of --freq becomes the nearest whole number
+	// of cycles of the estimate: the windows' phasors are the path averages
+	// the fit models only over whole cycles (calibrate.Window.Travel). Any
+	// other window (a multiple of 0.1 s at a tracer's frequency, for the
+	// mains' sake) stays.
+	win2 := win
+	if c := win * o.freq; math.Abs(c-math.Round(c)) < 1e-6*c {
+		win2 = math.Round(c) / est.freq
+	}
+	again, err := calibrate.Demodulate(s, &calibrate.DemodSettings{Freq: est.freq, Window: win2})
+	if err != nil {
+		return nil, 0, nil, err
+	}
+	warn := fmt.Sprintf("AC frequency estimated at %.*f ± %.*f Hz from %d windows, not the %g Hz given (at %g Hz the phase would turn %.0f° across the longest group, %.1f s, and the currents would read low); demodulated at %.*f Hz in %.4g s windows",
+		dec, est.freq, dec, est.sigma, est.windows, o.freq, o.freq, turn, span, dec, est.freq, win2)
+	return again, win2, appendNonEmpty(append([]string{warn}, again.Warnings...), groupWander(fit.Windows, est.freq, win2)), nil
+}
+
+func appendNonEmpty(list []string, s string) []string {
+	if s == "" {
+		return list
+	}
+	return append(list, s)
+}
+
+// groupWander checks each group's own frequency (its windows' estimates
+// combined as in estimateWindowFreq) against the frequency used, freq:
+// a grid's frequency wanders by hundredths of a hertz over minutes, so one
+// frequency for a long survey can still turn the phase across some groups.
+// It returns a warning naming them, or "" (also with a single group, which
+// the log's own check covers).
+func groupWander(ws []calibrate.Window, freq, window float64) string {
+	by := map[string][]calibrate.Window{}
+	var keys []string
+	for _, w := range ws {
+		if _, ok := by[w.Group]; !ok {
+			keys = append(keys, w.Group)
+		}
+		by[w.Group] = append(by[w.Group], w)
+	}
+	if len(keys) < 2 {
+		return ""
+	}
+	var bad []string
+	var worst, worstTurn float64
+	for _, k := range keys {
+		est, ok := estimateWindowFreq(by[k])
+		if !ok {
+			continue
+		}
+		off := est.freq - freq
+		turn := 360 * math.Abs(off) * longestGroupSpan(by[k], window)
+		if math.Abs(off) <= freqCheckSigmas*est.sigma || turn <= freqCheckDegrees || math.Abs(off) <= freqCheckUntrustedHz {
+			continue
+		}
+		bad = append(bad, k)
+		if math.Abs(off) > math.Abs(worst) {
+			worst = off
+		}
+		worstTurn = math.Max(worstTurn, turn)
+	}
+	if len(bad) == 0 {
+		return ""
+	}
+	if len(bad) > 8 {
+		bad = append(bad[:8], "...")
+	}
+	return fmt.Sprintf("in %d group(s) the AC frequency differs from the %.4f Hz demodulated (by up to %+.4f Hz, turning the phase up to %.0f° across a group): the frequency wandered during the survey, and those groups' currents may read low (%s); fit them from separate logs or with --freq set to their frequency",
+		len(bad), freq, worst, worstTurn, strings.Join(bad, ", "))
+}
