@@ -27,7 +27,7 @@ func TestAlarms(t *testing.T) {
 		quality       string
 	}{
 		{"silent sensor", nil, []complex128{100, -100}, []complex128{100, -100},
-			func(w *window) { w.Sensors[4] = series{} }, AlarmSilent, "fl-n1", "good"},
+			func(w *window) { w.Sensors[4] = series{} }, AlarmSilent, "fl-n1", "partial"},
 		{"step between windows", func(a *AssetConfig) { a.Alarms.Step = 20 }, []complex128{100, -100}, []complex128{150, -150},
 			nil, AlarmStep, "go", "good"},
 		{"over-current", func(a *AssetConfig) { a.Alarms.MaxCurrent = 120 }, []complex128{100, -100}, []complex128{130, -130},

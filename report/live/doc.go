@@ -14,9 +14,21 @@
 // sensor's next expected sample (its last time plus its sample interval)
 // falls in a later window, when the furthest sensor is Grace past its end
 // (the lagging sensors are reported silent), or after Idle of wall-clock
-// time without data. Batches that start at or before a sensor's last
-// sample are dead-lettered as out-of-order; batches entirely inside
-// published windows as late.
+// time without data. Data that was already in the broker when the worker
+// took the asset (after a start, a takeover or a restart request) does not
+// show that its publisher is still sending: until newer data arrives the
+// wait is ResumeIdle instead (2 min by default), so that windows rebuilt
+// from a checkpoint are not closed half full while the publisher is on its
+// way back. A window closed with a sensor more than one sample short of
+// what its rate gives, or without a sensor, is estimated from what
+// arrived with quality "partial" and the counts in "missing".
+//
+// Sample times are Unix seconds. A batch with a time before 2000-01-01,
+// or more than MaxAhead (1 h by default) ahead of the broker's clock when
+// it was stored (a gateway sending milliseconds), is dead-lettered as
+// malformed before it can touch the sensor's state. Batches that start at
+// or before a sensor's last sample are dead-lettered as out-of-order;
+// batches entirely inside published windows as late.
 //
 // # Reduction and solve
 //

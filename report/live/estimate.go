@@ -16,12 +16,18 @@ type Estimate struct {
 	// Background is the uniform field fitted with the currents (DC), nT ENU.
 	Background *[3]float64 `json:"background_nt,omitempty"`
 	// RMS is the root-mean-square residual, nT; Chi2 and DOF describe the
-	// fit; Quality is "good" or "degraded".
+	// fit. Quality is "good"; "partial" when the fit is good but a
+	// sensor's samples were missing from the window or left out (Missing
+	// says which and why); "degraded" when the reduced chi-square is above
+	// alarms.max_chi2; "failed" when the solve failed.
 	RMS     float64 `json:"rms_nt"`
 	Chi2    float64 `json:"chi2"`
 	DOF     int     `json:"dof"`
 	Quality string  `json:"quality"`
-	// Sensors used, samples used, and sensors left out with why.
+	// Sensors used, samples used, and the sensors left out or short of
+	// samples with why: "silent", "stuck", "131 of 500 samples" (used, but
+	// more than one sample short of what its rate puts in a window), "2 of
+	// 500 samples, too few to use", or a sine-fit error (AC).
 	Sensors int               `json:"sensors"`
 	Samples int               `json:"samples"`
 	Missing map[string]string `json:"missing,omitempty"`

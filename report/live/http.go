@@ -29,13 +29,14 @@ import (
 //	GET  /api/v1/assets                    assets, their settings and which worker holds each
 //	GET  /api/v1/assets/{asset}            the asset as listed, with its last restart request
 //	GET  /api/v1/assets/{asset}/latest     latest estimate
-//	GET  /api/v1/assets/{asset}/history    estimates with from <= start < to, oldest first (?from=&to=&limit=&revisions=&format=csv)
+//	GET  /api/v1/assets/{asset}/history    estimates with from <= start < to, oldest first (?from=&to=&limit=&revisions=&format=json|csv)
 //	GET  /api/v1/alarms                    alarms by window start, oldest first (?asset=&kind=&from=&to=&since=&limit=&revisions=)
 //	POST /api/v1/assets/{asset}/recommission  forget a commissioned geometry (token)
 //	POST /api/v1/assets/{asset}/restart    re-read from ?start= or {"start": ...} (token; 202, see Restarting an asset in the package doc)
 //
 // from and to are window starts on the sensor clock (Unix seconds for live
-// data), given as seconds or RFC 3339; since (alarms) is when the broker
+// data), given as seconds or RFC 3339 (from later than to is refused);
+// format is json (the default) or csv; since (alarms) is when the broker
 // stored the alarm, in the same forms, for clients that poll for new ones.
 // A listing returns at most limit results (default DefaultQueryLimit, at
 // most MaxQueryLimit): the first ones of the range, so a client pages by
@@ -228,7 +229,7 @@ func parseQuery(r *http.Request) (query, error) {
 			continue
 		}
 		t, err := parseTime(v)
-		if err != nil {
+		if err != nil || math.IsNaN(t) {
 			return q, fmt.Errorf("parameter %s: %q is neither seconds nor an RFC 3339 time", k, v)
 		}
 		if k == "from" {
@@ -236,6 +237,9 @@ func parseQuery(r *http.Request) (query, error) {
 		} else {
 			q.to = t
 		}
+	}
+	if q.from > q.to {
+		return q, fmt.Errorf("parameter from (%s) is later than to (%s): the range is empty", r.URL.Query().Get("from"), r.URL.Query().Get("to"))
 	}
 	if v := r.URL.Query().Get("limit"); v != "" {
 		n, err := strconv.Atoi(v)
@@ -283,12 +287,17 @@ func (s *Service) history(w http.ResponseWriter, r *http.Request) {
 		httpError(w, http.StatusBadRequest, err.Error())
 		return
 	}
+	format := r.URL.Query().Get("format")
+	if format != "" && format != "json" && format != "csv" {
+		httpError(w, http.StatusBadRequest, fmt.Sprintf("parameter format: %q is neither \"json\" (the default) nor \"csv\"", format))
+		return
+	}
 	ests, err := s.History(r.Context(), a.Name, q.from, q.to, q.limit, q.opts...)
 	if err != nil {
 		httpError(w, http.StatusBadGateway, err.Error())
 		return
 	}
-	if r.URL.Query().Get("format") == "csv" {
+	if format == "csv" {
 		writeEstimatesCSV(w, ests)
 		return
 	}

@@ -84,8 +84,12 @@ func (p *processor) reduce(w *window) *reduced {
 			r.alarms = append(r.alarms, p.alarm(w, AlarmSilent, s.Name, 0, 0, fmt.Sprintf("sensor %s sent no samples in the window", s.Name)))
 			continue
 		}
+		exp := 0
+		if i < len(w.Expected) {
+			exp = w.Expected[i]
+		}
 		if n < minSamples {
-			r.missing[s.Name] = fmt.Sprintf("%d samples", n)
+			r.missing[s.Name] = sampleCount(n, exp) + ", too few to use"
 			continue
 		}
 		if axis := stuckAxis(&sr); axis != "" {
@@ -93,6 +97,11 @@ func (p *processor) reduce(w *window) *reduced {
 			r.alarms = append(r.alarms, p.alarm(w, AlarmStuck, s.Name, sr.Bx[0], 0,
 				fmt.Sprintf("sensor %s repeated one value on axis %s for %d samples", s.Name, axis, n)))
 			continue
+		}
+		if n+1 < exp {
+			// More than one short: one is allowed for a sample on a
+			// boundary or a jittered clock.
+			r.missing[s.Name] = sampleCount(n, exp)
 		}
 		bx := append([]float64(nil), sr.Bx...)
 		by := append([]float64(nil), sr.By...)
@@ -143,6 +152,18 @@ func (p *processor) reduce(w *window) *reduced {
 		r.in.Sigma = a.Noise / math.Sqrt(float64(ns[len(ns)/2]))
 	}
 	return r
+}
+
+// sampleCount says how many samples a sensor gave a window: "131 of 500
+// samples" when its rate gives more (exp), else "1 sample", "3 samples".
+func sampleCount(n, exp int) string {
+	switch {
+	case exp > n:
+		return fmt.Sprintf("%d of %d samples", n, exp)
+	case n == 1:
+		return "1 sample"
+	}
+	return fmt.Sprintf("%d samples", n)
 }
 
 func stuckAxis(s *series) string {
@@ -198,6 +219,9 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 		e.Quality = "degraded"
 		alarms = append(alarms, p.alarm(w, AlarmDegraded, "", out.Chi2/float64(out.DOF), a.Alarms.MaxChi2,
 			fmt.Sprintf("reduced chi-square %.3g above %.3g", out.Chi2/float64(out.DOF), a.Alarms.MaxChi2)))
+	}
+	if e.Quality == "good" && len(r.missing) > 0 {
+		e.Quality = "partial" // a sensor short of samples or left out: see Missing
 	}
 	byName := map[string]complex128{}
 	for i, name := range p.names {

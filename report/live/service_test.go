@@ -309,6 +309,22 @@ func TestServiceEndToEnd(t *testing.T) {
 		t.Errorf("csv history:\n%s", csv)
 	}
 	get("/api/v1/assets/fenwick-lane/history?from=yesterday", 400)
+	// An unknown format or a reversed range is a client error, said so,
+	// not an answer in another format or an empty list.
+	for _, c := range []struct{ path, want string }{
+		{"/api/v1/assets/fenwick-lane/history?format=xml", `parameter format: \"xml\" is neither \"json\" (the default) nor \"csv\"`},
+		{fmt.Sprintf("/api/v1/assets/fenwick-lane/history?from=%.1f&to=%.1f", t0+2, t0+1), "is later than to"},
+		{fmt.Sprintf("/api/v1/alarms?from=%.1f&to=%.1f", t0+2, t0+1), "is later than to"},
+		{"/api/v1/assets/fenwick-lane/history?from=NaN", "parameter from"},
+	} {
+		if body := get(c.path, 400); !strings.Contains(body, c.want) {
+			t.Errorf("GET %s: %s, want an error with %s", c.path, body, c.want)
+		}
+	}
+	json.Unmarshal([]byte(get("/api/v1/assets/fenwick-lane/history?format=json&limit=3", 200)), &hist)
+	if len(hist) != 3 {
+		t.Errorf("history?format=json: %d estimates, want 3", len(hist))
+	}
 	// max_current = 1035: windows 4..9 (1041 A and up) raise over-current.
 	var alarms []Alarm
 	json.Unmarshal([]byte(get("/api/v1/alarms?asset=fenwick-lane&kind=over-current", 200)), &alarms)

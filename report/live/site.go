@@ -49,6 +49,17 @@ type ServiceConfig struct {
 	// Idle closes open windows after this much wall-clock time without any
 	// data for the asset (end of a replay, all sensors silent); 0 means 5 s.
 	Idle Duration `toml:"idle"`
+	// ResumeIdle replaces Idle while a worker has read only data that was
+	// already in the broker when it took the asset (start, takeover,
+	// restart request): windows rebuilt from that backlog are closed for
+	// lack of data only after this long, so that a publisher that stopped
+	// with the previous holder can still fill them when it comes back.
+	// Data arriving after the take-over brings back Idle. 0 means 2 min.
+	ResumeIdle Duration `toml:"resume_idle"`
+	// MaxAhead refuses, as malformed, batches with a sample time more than
+	// this ahead of the broker's clock when the batch was stored (sample
+	// times before 2000-01-01 are always refused); 0 means 1 h.
+	MaxAhead Duration `toml:"max_ahead"`
 	// MaxMessageBytes is the largest sensor message accepted; larger ones
 	// go to uc.dlq.oversized. 0 means 1 MiB.
 	MaxMessageBytes int `toml:"max_message_bytes"`
@@ -210,6 +221,20 @@ func (s *Site) validate() error {
 	}
 	if s.Service.Idle.Duration == 0 {
 		s.Service.Idle.Duration = 5 * time.Second
+	}
+	if s.Service.ResumeIdle.Duration == 0 {
+		s.Service.ResumeIdle.Duration = 2 * time.Minute
+	}
+	if s.Service.MaxAhead.Duration == 0 {
+		s.Service.MaxAhead.Duration = time.Hour
+	}
+	for _, d := range []struct {
+		key string
+		v   time.Duration
+	}{{"idle", s.Service.Idle.Duration}, {"resume_idle", s.Service.ResumeIdle.Duration}, {"max_ahead", s.Service.MaxAhead.Duration}} {
+		if d.v < 0 {
+			return fmt.Errorf("service.%s %v: want a positive duration", d.key, d.v)
+		}
 	}
 	if s.Service.MaxMessageBytes == 0 {
 		s.Service.MaxMessageBytes = 1 << 20

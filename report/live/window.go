@@ -28,6 +28,9 @@ type window struct {
 	Reason string
 	// minSeq is the oldest stream sequence that fed the window.
 	minSeq uint64
+	// Expected is, per sensor, the samples its sample interval puts in a
+	// window (0 when the interval is not known yet).
+	Expected []int
 }
 
 // openWindow is a window still collecting samples.
@@ -43,7 +46,10 @@ type openWindow struct {
 // rounding of times on a boundary). Window k closes when every sensor's
 // next expected sample (last time + its sample interval) falls in a later
 // window, when the furthest sensor is Grace past the window's end, or when
-// no data has arrived for Idle of wall time.
+// no data has arrived for Idle of wall time. Until a message stored after
+// backlog arrives, Idle is at least resumeIdle: data that was already in
+// the broker when the worker took the asset says nothing about whether its
+// publisher is still sending.
 type assembler struct {
 	L, grace float64
 	n        int
@@ -53,6 +59,11 @@ type assembler struct {
 	done     float64 // end of the last closed window; earlier samples are late
 	lastSeq  uint64
 	arrival  time.Time
+	// backlog is the last stream sequence stored before the worker began
+	// reading; fresh says a later message has arrived since.
+	backlog    uint64
+	fresh      bool
+	resumeIdle time.Duration
 }
 
 const boundaryEps = 1e-7
@@ -79,7 +90,12 @@ const (
 	added      addResult = iota
 	outOfOrder           // first sample not after the sensor's last one
 	late                 // every sample falls in a closed window
+	outOfRange           // a time too large for a window index
 )
+
+// maxWindowIndex bounds |t/L|: window indices and the times computed
+// from them stay exact integers in a float64, far from int64 overflow.
+const maxWindowIndex = 1 << 52
 
 // add files the samples of b (sensor index s, stream sequence seq).
 // Samples before the end of the last closed window are dropped; dropped
@@ -88,11 +104,17 @@ func (a *assembler) add(s int, seq uint64, b *broker.Batch, now time.Time) (res 
 	if seq > a.lastSeq {
 		a.lastSeq = seq
 	}
+	n := b.Len()
+	if !(math.Abs(b.Time[0]/a.L) < maxWindowIndex && math.Abs(b.Time[n-1]/a.L) < maxWindowIndex) {
+		return outOfRange, 0 // checked before any state changes
+	}
 	a.arrival = now
+	if seq > a.backlog {
+		a.fresh = true
+	}
 	if b.Time[0] <= a.water[s] {
 		return outOfOrder, 0
 	}
-	n := b.Len()
 	if n > 1 {
 		a.dt[s] = (b.Time[n-1] - b.Time[0]) / float64(n-1)
 	} else if !math.IsInf(a.water[s], -1) && a.dt[s] == 0 {
@@ -145,6 +167,9 @@ func (a *assembler) ready(now time.Time, idle time.Duration) []*window {
 	for _, w := range a.water {
 		maxWater = math.Max(maxWater, w)
 	}
+	if idle > 0 && !a.fresh && a.resumeIdle > idle {
+		idle = a.resumeIdle
+	}
 	idleNow := idle > 0 && !a.arrival.IsZero() && now.Sub(a.arrival) >= idle
 	for len(a.open) > 0 {
 		w := a.open[0]
@@ -163,7 +188,27 @@ func (a *assembler) ready(now time.Time, idle time.Duration) []*window {
 		}
 		a.open = a.open[1:]
 		a.done = end
-		out = append(out, &window{Index: w.idx, Start: float64(w.idx) * a.L, End: end, Sensors: w.sensors, Closed: now, Reason: reason, minSeq: w.minSeq})
+		out = append(out, &window{Index: w.idx, Start: float64(w.idx) * a.L, End: end, Sensors: w.sensors, Closed: now, Reason: reason, minSeq: w.minSeq, Expected: a.expected()})
+	}
+	return out
+}
+
+// expected returns the samples per window of each sensor at its current
+// sample interval dt (0 when not known): L/dt when that is a whole number
+// (to within the rounding of dt, which is estimated from times of about
+// 2e9 s), else floor(L/dt), as windows then hold floor(L/dt) or one more.
+func (a *assembler) expected() []int {
+	out := make([]int, a.n)
+	for s, dt := range a.dt {
+		x := a.L / dt
+		if !(dt > 0) || !(x < 1e9) {
+			continue
+		}
+		if r := math.Round(x); math.Abs(x-r) < 0.01 {
+			out[s] = int(r)
+		} else {
+			out[s] = int(math.Floor(x))
+		}
 	}
 	return out
 }

@@ -6,6 +6,7 @@ import (
 	"errors"
 	"fmt"
 	"log/slog"
+	"math"
 	"strconv"
 	"time"
 
@@ -128,7 +129,17 @@ func (w *assetWorker) consume(ctx context.Context) (*RestartStatus, uint64, erro
 	if err != nil {
 		return nil, 0, fmt.Errorf("live: asset %s: consumer: %w", w.asset.Name, err)
 	}
-	w.log.Info("asset acquired", "resume_seq", w.ck.ResumeSeq, "done", w.ck.Done, "revision", w.ck.Revision)
+	// Messages stored up to now are a backlog: reading them does not show
+	// that the asset's publisher is sending (see assembler.backlog).
+	w.asm.backlog, w.asm.fresh, w.asm.resumeIdle = 0, false, w.svc.site.Service.ResumeIdle.Duration
+	if ds, err := st.JS.Stream(bg, broker.StreamData); err != nil {
+		w.log.Warn("data stream not readable: idle closes count backlog as new data", "err", err)
+	} else if info, err := ds.Info(bg); err != nil {
+		w.log.Warn("data stream not readable: idle closes count backlog as new data", "err", err)
+	} else {
+		w.asm.backlog = info.State.LastSeq
+	}
+	w.log.Info("asset acquired", "resume_seq", w.ck.ResumeSeq, "done", w.ck.Done, "revision", w.ck.Revision, "backlog_to", w.asm.backlog)
 	msgs := make(chan jetstream.Msg, 64)
 	go func() {
 		defer close(msgs)
@@ -302,10 +313,18 @@ func (w *assetWorker) handle(m jetstream.Msg) error {
 	if err != nil {
 		return w.deadLetter(broker.ReasonMalformed, subj, seq, data, err)
 	}
+	// Judged against the broker's clock when the batch was stored, so that
+	// reading the message again later gives the same answer.
+	if err := checkTimes(subj, b, md.Timestamp, w.svc.site.Service.MaxAhead.Duration); err != nil {
+		return w.deadLetter(broker.ReasonMalformed, subj, seq, data, err)
+	}
 	t0 = time.Now()
 	res, _ := w.asm.add(si, seq, b, t0)
 	met.stage.WithLabelValues("assemble").Observe(time.Since(t0).Seconds())
 	switch res {
+	case outOfRange:
+		return w.deadLetter(broker.ReasonMalformed, subj, seq, data,
+			fmt.Errorf("live: %s: times %v to %v give window indices beyond %v", subj, b.Time[0], b.Time[b.Len()-1], float64(maxWindowIndex)))
 	case outOfOrder:
 		return w.deadLetter(broker.ReasonOutOfOrder, subj, seq, data,
 			fmt.Errorf("live: %s: batch starts at %v, not after the sensor's last sample", subj, b.Time[0]))
@@ -320,6 +339,51 @@ func (w *assetWorker) handle(m jetstream.Msg) error {
 	met.messages.WithLabelValues(w.asset.Name, "accepted").Inc()
 	met.samples.WithLabelValues(w.asset.Name).Add(float64(b.Len()))
 	return w.closeReady(t0, 0)
+}
+
+// minSensorTime is the earliest sample time accepted, 2000-01-01T00:00:00Z
+// in Unix seconds: earlier times are a gateway that lost its clock or
+// sends time since power-up. A log with such times is replayed with
+// --now or --shift.
+const minSensorTime = 946684800
+
+// checkTimes refuses a batch whose sample times cannot be Unix seconds
+// from a working clock: before 2000-01-01, or more than ahead past stored
+// (the broker's clock when the batch was stored), as a timestamp in
+// milliseconds or microseconds would be. Such a batch would otherwise
+// become the sensor's last sample and make every correct batch after it
+// out of order.
+func checkTimes(subj string, b *broker.Batch, stored time.Time, ahead time.Duration) error {
+	first, last := b.Time[0], b.Time[b.Len()-1] // times increase (Decode checks)
+	if first < minSensorTime {
+		return fmt.Errorf("live: %s: sample time %v is before 2000-01-01T00:00:00Z (%d); times are Unix seconds", subj, first, minSensorTime)
+	}
+	limit := float64(stored.UnixNano())/1e9 + ahead.Seconds()
+	if last > limit {
+		hint := ""
+		for _, u := range []struct {
+			f    float64
+			name string
+		}{{1e3, "milliseconds"}, {1e6, "microseconds"}, {1e9, "nanoseconds"}} {
+			if v := last / u.f; v >= minSensorTime && v <= limit {
+				hint = fmt.Sprintf(" (it reads as Unix %s: times are Unix seconds)", u.name)
+				break
+			}
+		}
+		return fmt.Errorf("live: %s: sample time %v (%s) is more than %v ahead of the broker's clock (%s)%s",
+			subj, last, unixString(last), ahead, stored.UTC().Format(time.RFC3339), hint)
+	}
+	return nil
+}
+
+// unixString formats Unix seconds as RFC 3339, or says the time is past
+// the year 5000.
+func unixString(t float64) string {
+	if !(math.Abs(t) < 1e11) {
+		return "after the year 5000"
+	}
+	sec, frac := math.Modf(t)
+	return time.Unix(int64(sec), int64(frac*1e9)).UTC().Format(time.RFC3339)
 }
 
 func (w *assetWorker) deadLetter(reason, subj string, seq uint64, data []byte, cause error) error {
