@@ -77,7 +77,12 @@ func defaultWindow(freq float64) float64 {
 		return 10 / freq
 	}
 	w := math.Max(10/freq, mainsWindowStep)
-	// Round up to the step, forgiving the rounding of 10/freq.
+	// Round up to the step, forgiving the rounding of 10/freq. The window
+	// then holds a fraction of a cycle of the signal beyond whole ones
+	// (10.02 cycles at 16.7 Hz), which the walking sensor's path-average
+	// model does not cover: a small bias and at times a weak phantom line
+	// (DEVELOPERS.md, known limits); whole signal cycles instead let the
+	// mains leak in as worse phantoms beside a tracer.
 	n := math.Ceil(w/mainsWindowStep - 1e-9)
 	return n * mainsWindowStep
 }
@@ -261,19 +266,23 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 	}
 	est, ok := estimateWindowFreq(fit.Windows)
 	if !ok {
-		return res, win, res.Warnings, nil
+		return res, win, append(res.Warnings, fmt.Sprintf("the AC frequency could not be checked: fewer than %d windows have a clear signal (the field %d times its noise on some axis), for example with a stronger field at another frequency nearby; the results assume the field runs at exactly %g Hz", freqCheckMinWindows, freqCheckSNR, o.freq)), nil
 	}
 	off := est.freq - o.freq
 	span := longestGroupSpan(res.Windows, win)
 	turn := 360 * math.Abs(off) * span
 	if math.Abs(off) <= freqCheckSigmas*est.sigma || turn <= freqCheckDegrees {
-		return res, win, appendNonEmpty(res.Warnings, groupWander(fit.Windows, o.freq, win)), nil
+		res, warn, err := followWander(s, res, fit.Windows, o.freq, win)
+		if err != nil {
+			return nil, 0, nil, err
+		}
+		return res, win, appendNonEmpty(res.Warnings, warn), nil
 	}
 	dec := freqDecimals(est.sigma)
 	if !est.trusted && math.Abs(off) <= freqCheckUntrustedHz {
 		// Walked one way only: the offset may be the walk's, not the grid's.
-		return res, win, append(res.Warnings, fmt.Sprintf("the windows' phase advances as if the AC field ran at %.*f ± %.*f Hz, not the %g Hz given (a turn of %.0f° across the longest group, %.1f s): the grid slightly off its frequency, or the phase changing along traverses all walked the same way where conductors of different phase overlap, which a log walked one way cannot tell apart; if the grid was off, rerun with --freq %.*f",
-			dec, est.freq, dec, est.sigma, o.freq, turn, span, dec, est.freq)), nil
+		return res, win, append(res.Warnings, fmt.Sprintf("the windows' phase advances as if the AC field ran at %.*f ± %.*f Hz, not the %g Hz given (a turn of %.0f° across the longest group, %.1f s): the grid slightly off its frequency, or the phase changing along traverses all walked the same way where conductors of different phase overlap, which a log walked one way cannot tell apart; the results assume the %g Hz given (walk back and forth, or log a while standing still, to tell)",
+			dec, est.freq, dec, est.sigma, o.freq, turn, span, o.freq)), nil
 	}
 	// Beyond about a quarter of 1/window from --freq the windows' fits no
 	// longer converge reliably; an estimate out there is not to be trusted.
@@ -295,7 +304,66 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 	}
 	warn := fmt.Sprintf("AC frequency estimated at %.*f ± %.*f Hz from %d windows, not the %g Hz given (at %g Hz the phase would turn %.0f° across the longest group, %.1f s, and the currents would read low); demodulated at %.*f Hz in %.4g s windows",
 		dec, est.freq, dec, est.sigma, est.windows, o.freq, o.freq, turn, span, dec, est.freq, win2)
-	return again, win2, appendNonEmpty(append([]string{warn}, again.Warnings...), groupWander(fit.Windows, est.freq, win2)), nil
+	again, wander, err := followWander(s, again, fit.Windows, est.freq, win2)
+	if err != nil {
+		return nil, 0, nil, err
+	}
+	return again, win2, appendNonEmpty(append([]string{warn}, again.Warnings...), wander), nil
+}
+
+// followWander demodulates each group whose own frequency differs from
+// freq (groupWander) at that frequency, in windows of the same whole
+// number of its cycles, and puts its windows in res in place of those
+// demodulated at freq. It returns the result and a warning naming the
+// groups, or "" when none wandered.
+func followWander(s *ingest.Samples, res *calibrate.DemodResult, fitted []calibrate.Window, freq, window float64) (*calibrate.DemodResult, string, error) {
+	bad := groupWander(fitted, freq, window)
+	if len(bad) == 0 {
+		return res, "", nil
+	}
+	keys := make([]string, 0, len(bad))
+	for k := range bad {
+		keys = append(keys, k)
+	}
+	sort.Strings(keys)
+	own := map[string][]calibrate.Window{}
+	cycles := math.Round(window * freq)
+	var worst float64
+	for _, k := range keys {
+		f := bad[k]
+		d, err := calibrate.Demodulate(s, &calibrate.DemodSettings{Freq: f, Window: cycles / f})
+		if err != nil {
+			return nil, "", err
+		}
+		for _, w := range d.Windows {
+			if w.Group == k {
+				own[k] = append(own[k], w)
+			}
+		}
+		if math.Abs(f-freq) > math.Abs(worst) {
+			worst = f - freq
+		}
+	}
+	out := *res
+	out.Windows = make([]calibrate.Window, 0, len(res.Windows))
+	done := map[string]bool{}
+	for _, w := range res.Windows {
+		ws, ok := own[w.Group]
+		if !ok {
+			out.Windows = append(out.Windows, w)
+			continue
+		}
+		if !done[w.Group] {
+			out.Windows = append(out.Windows, ws...)
+			done[w.Group] = true
+		}
+	}
+	named := keys
+	if len(named) > 8 {
+		named = append(append([]string(nil), named[:8]...), "...")
+	}
+	return &out, fmt.Sprintf("in %d group(s) the AC frequency differs from the %.4f Hz demodulated elsewhere (by up to %+.4f Hz): the frequency wandered during the survey; those groups were demodulated at their own frequencies (%s)",
+		len(keys), freq, worst, strings.Join(named, ", ")), nil
 }
 
 func appendNonEmpty(list []string, s string) []string {
@@ -306,12 +374,12 @@ func appendNonEmpty(list []string, s string) []string {
 }
 
 // groupWander checks each group's own frequency (its windows' estimates
-// combined as in estimateWindowFreq) against the frequency used, freq:
-// a grid's frequency wanders by hundredths of a hertz over minutes, so one
+// combined as in estimateWindowFreq) against the frequency used, freq: a
+// grid's frequency wanders by hundredths of a hertz over minutes, so one
 // frequency for a long survey can still turn the phase across some groups.
-// It returns a warning naming them, or "" (also with a single group, which
-// the log's own check covers).
-func groupWander(ws []calibrate.Window, freq, window float64) string {
+// It returns those groups with their own frequencies (none with a single
+// group, which the log's own check covers).
+func groupWander(ws []calibrate.Window, freq, window float64) map[string]float64 {
 	by := map[string][]calibrate.Window{}
 	var keys []string
 	for _, w := range ws {
@@ -321,10 +389,9 @@ func groupWander(ws []calibrate.Window, freq, window float64) string {
 		by[w.Group] = append(by[w.Group], w)
 	}
 	if len(keys) < 2 {
-		return ""
+		return nil
 	}
-	var bad []string
-	var worst, worstTurn float64
+	bad := map[string]float64{}
 	for _, k := range keys {
 		est, ok := estimateWindowFreq(by[k])
 		if !ok {
@@ -335,18 +402,7 @@ func groupWander(ws []calibrate.Window, freq, window float64) string {
 		if math.Abs(off) <= freqCheckSigmas*est.sigma || turn <= freqCheckDegrees || math.Abs(off) <= freqCheckUntrustedHz {
 			continue
 		}
-		bad = append(bad, k)
-		if math.Abs(off) > math.Abs(worst) {
-			worst = off
-		}
-		worstTurn = math.Max(worstTurn, turn)
+		bad[k] = est.freq
 	}
-	if len(bad) == 0 {
-		return ""
-	}
-	if len(bad) > 8 {
-		bad = append(bad[:8], "...")
-	}
-	return fmt.Sprintf("in %d group(s) the AC frequency differs from the %.4f Hz demodulated (by up to %+.4f Hz, turning the phase up to %.0f° across a group): the frequency wandered during the survey, and those groups' currents may read low (%s); fit them from separate logs or with --freq set to their frequency",
-		len(bad), freq, worst, worstTurn, strings.Join(bad, ", "))
+	return bad
 }
