@@ -342,5 +342,30 @@ func jsonError(path string, data []byte, err error) error {
 	}
 	line := 1 + bytes.Count(data[:off], []byte("\n"))
 	col := int(off) - bytes.LastIndexByte(data[:off], '\n')
+	if se != nil {
+		// The decoder's own words ("invalid character 'a' in literal
+		// null") do not say what the file should be.
+		return fmt.Errorf("calibrate: %s:%d:%d: not a calibration file: a calibration file is JSON written by the calibrate command (%w)", path, line, col, err)
+	}
+	if te != nil {
+		return fmt.Errorf("calibrate: %s:%d:%d: field %s: want %s, found a JSON %s", path, line, col, te.Field, jsonKind(te.Type.Kind().String()), te.Value)
+	}
 	return fmt.Errorf("calibrate: %s:%d:%d: %w", path, line, col, err)
+}
+
+// jsonKind names a Go kind as a JSON value.
+func jsonKind(k string) string {
+	switch {
+	case strings.HasPrefix(k, "float"), strings.HasPrefix(k, "int"), strings.HasPrefix(k, "uint"):
+		return "a number"
+	case k == "string":
+		return "a string"
+	case k == "bool":
+		return "true or false"
+	case k == "slice", k == "array":
+		return "a list"
+	case k == "struct", k == "map":
+		return "an object"
+	}
+	return k
 }

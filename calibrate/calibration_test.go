@@ -81,10 +81,12 @@ func TestLoadRejects(t *testing.T) {
 		{"future version", `{"version": 2, "method": "ellipsoid"}`, "version 2 is not supported"},
 		{"no version", `{"method": "zero"}`, `no "version"`},
 		{"syntax", "{\"version\": 1,\n \"method\": \"zero\",\n \"offset_nt\": [1, 2,, 3]}", ":3:"},
+		{"not JSON", "method = zero\n", ":1:2: not a calibration file: a calibration file is JSON"},
+		{"text for a number", spoil(`"created": "2026-11-30T09:12:00Z"`, `"created": "2026-11-30T09:12:00Z", "reference_nt": "fifty"`), "field reference_nt: want a number, found a JSON string"},
 		{"unknown field", spoil(`"offset_nt"`, `"offest_nt": [1,2,3], "offset_nt"`), "offest_nt"},
 		{"singular", spoil(`[[1,0,0],[0,1,0],[0,0,1]]`, `[[1,0,0],[0,0,0],[0,0,1]]`), "singular"},
 		{"method", spoil(`"zero"`, `"guess"`), `"guess"`},
-		{"trailing", "{" + good + "}\n{}", ":2:2: invalid character"},
+		{"trailing", "{" + good + "}\n{}", ":2:2: not a calibration file"},
 		// Fixed-size arrays would take these silently: a short offset
 		// padded with zeros, extra values dropped, a 2x2 matrix padded
 		// (and then called singular), a missing date read as year 1.

@@ -275,7 +275,7 @@ func Parse(data []byte, name string) (*Scenario, error) {
 			if l, c := findKey(data, strings.Join(k[:len(k)-1], "."), -1, k[len(k)-1]); l > 0 {
 				line, col = strconv.Itoa(l), strconv.Itoa(c)
 			}
-			return nil, fmt.Errorf("simulate: %s:%s:%s: key %s: %s", name, line, col, m[2], m[3])
+			return nil, fmt.Errorf("simulate: %s:%s:%s: key %s: %s", name, line, col, m[2], tomlTypeWords(m[3]))
 		}
 		return nil, fmt.Errorf("simulate: %s: %w", name, err)
 	}
@@ -639,3 +639,32 @@ func finite(v ...float64) bool {
 }
 
 func norm(v [3]float64) float64 { return math.Sqrt(v[0]*v[0] + v[1]*v[1] + v[2]*v[2]) }
+
+// tomlTypeRE matches the TOML decoder's type mismatch, "incompatible
+// types: TOML value has type string; destination has type float".
+var tomlTypeRE = regexp.MustCompile(`incompatible types: TOML value has type (\w+); destination has type (\w+)`)
+
+// tomlTypeWords rewords the decoder's type mismatch for a scenario's
+// author ("want a number, found a string"); other messages pass unchanged.
+func tomlTypeWords(msg string) string {
+	m := tomlTypeRE.FindStringSubmatch(msg)
+	if m == nil {
+		return msg
+	}
+	name := func(t string) string {
+		switch {
+		case strings.HasPrefix(t, "float"), strings.HasPrefix(t, "int"), strings.HasPrefix(t, "uint"):
+			return "a number"
+		case t == "string":
+			return "a string (in quotes)"
+		case t == "bool":
+			return "true or false"
+		case strings.HasPrefix(t, "[]"), t == "slice", t == "array":
+			return "a list"
+		case t == "map", t == "struct", strings.HasPrefix(t, "map"):
+			return "a table"
+		}
+		return t
+	}
+	return "want " + name(m[2]) + ", found " + name(m[1])
+}

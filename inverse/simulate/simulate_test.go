@@ -533,6 +533,7 @@ current_a = 10
 	}
 	cases := []parseCase{
 		{"syntax", "count = 2", "count = = 2", "s.toml:5:"},
+		{"text for a number", "count = 2", `count = "two"`, "key survey.count: want a number, found a string (in quotes)"},
 		{"unknown key", "spacing_m = 5", "spacing = 5", `s.toml:6:11: unknown key "survey.spacing"`},
 		{"wrong type", "count = 2", `count = "two"`, "s.toml:5:"},
 		{"bad kind", `kind = "line"`, `kind = "cable"`, `s.toml:9:8: conductor 1 (""): unknown kind "cable"`},
