@@ -284,3 +284,18 @@ func TestMessagesWording(t *testing.T) {
 		t.Errorf("simulate's help:\n%s", h)
 	}
 }
+
+// TestReplayRefusesTimesBefore2000: a log whose times start at zero (or
+// shifted before 2000) would be refused by the pipeline batch by batch;
+// replay refuses it before connecting, naming --now and --shift.
+func TestReplayRefusesTimesBefore2000(t *testing.T) {
+	dir := t.TempDir()
+	log := filepath.Join(dir, "zero.csv")
+	if err := os.WriteFile(log, []byte("time,bx,by,bz,group\n0,1,2,3,s1\n0.1,1,2,3,s1\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	code, _, errOut := cli(t, "replay", log, "--asset", "x", "--broker", "nats://127.0.0.1:1", "--wait", "1ms")
+	if code != 1 || !strings.Contains(errOut, "before 2000-01-01") || !strings.Contains(errOut, "--now") {
+		t.Errorf("exit %d, %q: want a refusal naming --now", code, errOut)
+	}
+}

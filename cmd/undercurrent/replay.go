@@ -25,6 +25,7 @@ type replayOptions struct {
 	format   string
 	now      bool
 	shift    float64
+	maxAhead time.Duration
 	user     string
 	password string
 	token    string
@@ -46,9 +47,14 @@ come from the site file, not the log. Time must run forward within each
 sensor's rows, while the rows of different sensors may interleave or
 follow one another (the default --time-order here is per-group); with
 --time-order any the rows are put in time order first, with a warning. A
-sensor may not have two readings at one time. Each batch is stored once
-even if the replay is repeated (message ids), so an interrupted replay can
-be run again.
+sensor may not have two readings at one time. A batch repeated within the
+broker's duplicate window (two minutes) is not stored twice (message ids),
+so an interrupted replay can be run again at once; repeated later, it is
+stored again and the pipeline refuses it as late or out of order (no
+estimate is made twice, but a window the interruption cut short stays
+partial). With --now the log is shifted by whole minutes, so windows line
+up as in the log; times more than --max-ahead ahead of the clock are held
+back until they are not, since the pipeline refuses them.
 
 Examples:
   undercurrent replay fenwick-2025-11-30.arrows --asset fenwick-lane --speed 1
@@ -63,6 +69,7 @@ Examples:
 			fs.StringVar(&o.format, "format", "json", "payload encoding: json or arrow")
 			fs.BoolVar(&o.now, "now", false, "shift times so the log starts now (makes an old log look live)")
 			fs.Float64Var(&o.shift, "shift", 0, "add `S` seconds to every time")
+			fs.DurationVar(&o.maxAhead, "max-ahead", time.Hour, "never send times more than `DURATION` (less a minute) ahead of the clock: the site file's max_ahead, beyond which the pipeline refuses batches; a log shifted with --now and replayed faster than real time is slowed to the clock there (0: no limit)")
 			fs.StringVar(&o.user, "user", "", "broker user")
 			fs.StringVar(&o.password, "password", "", "broker password")
 			fs.StringVar(&o.token, "token", "", "broker token")
@@ -110,6 +117,19 @@ func runReplay(ctx context.Context, o *replayOptions, fs *pflag.FlagSet, args []
 	for _, w := range warns {
 		fmt.Fprintf(stdout, "warning: %s\n", w)
 	}
+	set := &broker.ReplaySettings{Speed: o.speed, Encoding: enc, Shift: o.shift, MaxAhead: o.maxAhead}
+	if o.maxAhead > 2*replayAheadMargin {
+		set.MaxAhead = o.maxAhead - replayAheadMargin
+	}
+	if o.now {
+		// A whole number of minutes, so that windows that divide a minute
+		// (the site file's 1 s and 10 s) line up with the log's as they
+		// did: a fractional shift splits every window in two.
+		set.Shift = math.Floor((float64(time.Now().UnixNano())/1e9-batches[0].Time[0])/60) * 60
+	}
+	if t0 := batches[0].Time[0] + set.Shift; t0 < minReplayTime {
+		return fmt.Errorf("%s: the first time, %.3f s, is before 2000-01-01 (Unix seconds): the pipeline refuses such times; make the log start now with --now, or add seconds with --shift", args[0], t0)
+	}
 	nc, err := broker.Connect(o.broker, "undercurrent replay", broker.Auth{User: o.user, Password: o.password, Token: o.token})
 	if err != nil {
 		return err
@@ -122,18 +142,25 @@ func runReplay(ctx context.Context, o *replayOptions, fs *pflag.FlagSet, args []
 	if err := waitForStream(ctx, js, o.wait); err != nil {
 		return err
 	}
-	set := &broker.ReplaySettings{Speed: o.speed, Encoding: enc, Shift: o.shift}
-	if o.now {
-		set.Shift = float64(time.Now().UnixNano())/1e9 - batches[0].Time[0]
-	}
 	st, err := broker.Replay(ctx, js, batches, set)
 	if err != nil {
 		return err
 	}
 	fmt.Fprintf(stdout, "replayed %d samples in %d batches for asset %s, sensors %v, times %.3f to %.3f (%d already stored)\n",
 		st.Samples, st.Batches, o.asset, st.Sensors, st.From, st.To, st.Duplicates)
+	if st.HeldBack > 0 {
+		fmt.Fprintf(stdout, "held back %d batches that would have run more than %v ahead of the clock (--max-ahead): the pipeline refuses those\n", st.HeldBack, o.maxAhead)
+	}
 	return nil
 }
+
+// minReplayTime is 2000-01-01T00:00:00Z in Unix seconds: the pipeline
+// refuses earlier sample times as malformed.
+const minReplayTime = 946684800
+
+// replayAheadMargin keeps replayed times this far inside --max-ahead, for
+// the time a batch takes to reach the broker and for clocks a little apart.
+const replayAheadMargin = time.Minute
 
 // replayBatches reads the log and splits it into the sensors' batches.
 //

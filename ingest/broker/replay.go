@@ -145,6 +145,12 @@ type ReplaySettings struct {
 	Shift float64
 	// Progress, when set, is called after each acknowledged batch.
 	Progress func(done, total int)
+	// MaxAhead, when positive, holds back a batch whose last time (after
+	// Shift) is more than MaxAhead ahead of the wall clock until it is
+	// not: a pipeline refuses batches too far ahead of its clock (a
+	// gateway sending milliseconds), and a log shifted to now and replayed
+	// faster than real time would otherwise run past that limit.
+	MaxAhead time.Duration
 }
 
 // ReplayStats summarises a replay.
@@ -153,8 +159,10 @@ type ReplayStats struct {
 	// Duplicates counts batches the broker already held (a replay resumed
 	// after an interruption stores nothing twice).
 	Duplicates int
-	Sensors    []string
-	From, To   float64 // first and last sample time sent, s
+	// HeldBack counts batches held back by MaxAhead.
+	HeldBack int
+	Sensors  []string
+	From, To float64 // first and last sample time sent, s
 }
 
 // Replay publishes batches through JetStream as live sensor messages,
@@ -176,6 +184,17 @@ func Replay(ctx context.Context, js jetstream.JetStream, batches []*Batch, set *
 		if rs.Speed > 0 {
 			due := wall0.Add(time.Duration((last - data0) / rs.Speed * float64(time.Second)))
 			if d := time.Until(due); d > 0 {
+				select {
+				case <-ctx.Done():
+					return st, ctx.Err()
+				case <-time.After(d):
+				}
+			}
+		}
+		if rs.MaxAhead > 0 {
+			ahead := time.Duration((last + rs.Shift - float64(time.Now().UnixNano())/1e9) * float64(time.Second))
+			if d := ahead - rs.MaxAhead; d > 0 {
+				st.HeldBack++
 				select {
 				case <-ctx.Done():
 					return st, ctx.Err()

@@ -155,3 +155,43 @@ func TestReplay(t *testing.T) {
 		t.Errorf("stream holds %d messages, want 10", si.State.Msgs)
 	}
 }
+
+// TestReplayHoldsBack: batches shifted to run ahead of the clock by more
+// than MaxAhead wait until they are within it (the pipeline would refuse
+// them); those within it go at once. The counts, not the waiting times,
+// are checked.
+func TestReplayHoldsBack(t *testing.T) {
+	if testing.Short() {
+		t.Skip("starts a broker")
+	}
+	ctx, cancel := context.WithTimeout(context.Background(), 30*time.Second)
+	defer cancel()
+	s := startTestServer(t, ServerConfig{MQTTPort: -1})
+	_, js := connectJS(t, s.ClientURL(), Auth{})
+	if _, err := Setup(ctx, js, StreamSettings{Memory: true}); err != nil {
+		t.Fatal(err)
+	}
+	bs, err := SplitSamples(groupedLog(50), "fenwick-lane", "", 0.1)
+	if err != nil {
+		t.Fatal(err)
+	}
+	now := float64(time.Now().UnixNano()) / 1e9
+	// Shifted to start 0.2 s ahead of now, every batch is at least 0.2 s
+	// ahead of the clock when it is due.
+	shift := now + 0.2 - bs[0].Time[0]
+	st, err := Replay(ctx, js, bs, &ReplaySettings{Shift: shift, MaxAhead: 50 * time.Millisecond})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if st.Batches != 10 || st.HeldBack == 0 {
+		t.Errorf("stats %+v: want all 10 batches sent, some held back", st)
+	}
+	// Far inside the limit nothing waits.
+	st, err = Replay(ctx, js, bs, &ReplaySettings{Shift: shift - 3600, MaxAhead: time.Minute})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if st.HeldBack != 0 {
+		t.Errorf("an hour in the past: %d batches held back", st.HeldBack)
+	}
+}
