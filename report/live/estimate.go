@@ -78,3 +78,7 @@ const (
 	AlarmStuck       = "stuck"        // sensor repeated one value on an axis
 	AlarmDegraded    = "degraded"     // reduced chi-square above alarms.max_chi2, or the solve failed
 )
+
+// AlarmKinds lists every alarm kind the service raises; the alarms API
+// refuses any other kind.
+var AlarmKinds = []string{AlarmOverCurrent, AlarmImbalance, AlarmStep, AlarmSilent, AlarmStuck, AlarmDegraded}

@@ -10,6 +10,7 @@ import (
 	"math"
 	"net"
 	"net/http"
+	"slices"
 	"strconv"
 	"strings"
 	"time"
@@ -17,8 +18,6 @@ import (
 	"github.com/nats-io/nats.go"
 	"github.com/nats-io/nats.go/jetstream"
 	"github.com/prometheus/client_golang/prometheus/promhttp"
-
-	"undercurrent/ingest/broker"
 )
 
 // Handler returns the HTTP API:
@@ -30,14 +29,17 @@ import (
 //	GET  /api/v1/assets/{asset}            the asset as listed, with its last restart request
 //	GET  /api/v1/assets/{asset}/latest     latest estimate
 //	GET  /api/v1/assets/{asset}/history    estimates with from <= start < to, oldest first (?from=&to=&limit=&revisions=&format=json|csv)
-//	GET  /api/v1/alarms                    alarms by window start, oldest first (?asset=&kind=&from=&to=&since=&limit=&revisions=)
+//	GET  /api/v1/alarms                    alarms by window start, oldest first (?asset=&kind=&from=&to=&since=&limit=&revisions=&format=json)
 //	POST /api/v1/assets/{asset}/recommission  forget a commissioned geometry (token)
 //	POST /api/v1/assets/{asset}/restart    re-read from ?start= or {"start": ...} (token; 202, see Restarting an asset in the package doc)
 //
 // from and to are window starts on the sensor clock (Unix seconds for live
 // data), given as seconds or RFC 3339 (from later than to is refused);
-// format is json (the default) or csv; since (alarms) is when the broker
+// format is json (the default) or csv for history, json only for alarms;
+// kind is one of AlarmKinds; since (alarms) is when the broker
 // stored the alarm, in the same forms, for clients that poll for new ones.
+// A parameter given with an empty value (from=, to=, since=, limit=) is
+// refused rather than read as absent.
 // A listing returns at most limit results (default DefaultQueryLimit, at
 // most MaxQueryLimit): the first ones of the range, so a client pages by
 // asking again from just after the last start it received. Queries are
@@ -54,6 +56,8 @@ import (
 // Read endpoints are open when the API listens on
 // loopback; otherwise, and for every state-changing endpoint, the request
 // needs "Authorization: Bearer TOKEN" with the site's service token.
+// Every error, including an unknown path (404) and a method the path
+// does not take (405, with an Allow header), is JSON {"error": ...}.
 func (s *Service) Handler() http.Handler {
 	mux := http.NewServeMux()
 	mux.HandleFunc("GET /healthz", func(w http.ResponseWriter, r *http.Request) { fmt.Fprintln(w, "ok") })
@@ -66,7 +70,46 @@ func (s *Service) Handler() http.Handler {
 	mux.Handle("GET /api/v1/alarms", s.read(http.HandlerFunc(s.alarmList)))
 	mux.Handle("POST /api/v1/assets/{asset}/recommission", s.write(http.HandlerFunc(s.recommission)))
 	mux.Handle("POST /api/v1/assets/{asset}/restart", s.write(http.HandlerFunc(s.restart)))
-	return mux
+	return http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
+		h, pattern := mux.Handler(r)
+		if pattern == "" { // no route: the mux's own 404 or 405 (which sets Allow)
+			h.ServeHTTP(&routeErrorWriter{ResponseWriter: w, r: r}, r)
+			return
+		}
+		mux.ServeHTTP(w, r)
+	})
+}
+
+// routeErrorWriter turns the plain-text 404 and 405 of http.ServeMux
+// into JSON errors, keeping the status and the headers set before it
+// (Allow on 405).
+type routeErrorWriter struct {
+	http.ResponseWriter
+	r       *http.Request
+	written bool
+}
+
+func (e *routeErrorWriter) WriteHeader(code int) {
+	if e.written {
+		return
+	}
+	e.written = true
+	e.Header().Del("X-Content-Type-Options")
+	msg := http.StatusText(code)
+	switch code {
+	case http.StatusNotFound:
+		msg = fmt.Sprintf("no endpoint %s (see GET /api/v1/assets and /api/v1/alarms)", e.r.URL.Path)
+	case http.StatusMethodNotAllowed:
+		msg = fmt.Sprintf("method %s is not allowed on %s; allowed: %s", e.r.Method, e.r.URL.Path, e.Header().Get("Allow"))
+	}
+	httpError(e.ResponseWriter, code, msg)
+}
+
+func (e *routeErrorWriter) Write(p []byte) (int, error) {
+	if !e.written {
+		e.WriteHeader(http.StatusOK)
+	}
+	return len(p), nil // the mux's plain-text body is replaced by the JSON one
 }
 
 func (s *Service) readyz(w http.ResponseWriter, r *http.Request) {
@@ -223,6 +266,11 @@ type query struct {
 
 func parseQuery(r *http.Request) (query, error) {
 	q := query{from: -1e300, to: 1e300, limit: DefaultQueryLimit}
+	for _, k := range []string{"from", "to", "since", "limit"} {
+		if vs, ok := r.URL.Query()[k]; ok && (len(vs) == 0 || vs[0] == "") {
+			return q, fmt.Errorf("parameter %s is empty: give a value or leave it out", k)
+		}
+	}
 	for _, k := range []string{"from", "to"} {
 		v := r.URL.Query().Get(k)
 		if v == "" {
@@ -338,8 +386,12 @@ func (s *Service) alarmList(w http.ResponseWriter, r *http.Request) {
 		httpError(w, http.StatusNotFound, fmt.Sprintf("no asset %q in the site file", asset))
 		return
 	}
-	if kind != "" && broker.ValidToken(kind) != nil {
-		httpError(w, http.StatusBadRequest, fmt.Sprintf("parameter kind: %q is not an alarm kind", kind))
+	if kind != "" && !slices.Contains(AlarmKinds, kind) {
+		httpError(w, http.StatusBadRequest, fmt.Sprintf("parameter kind: %q is not an alarm kind (%s)", kind, strings.Join(AlarmKinds, ", ")))
+		return
+	}
+	if format := r.URL.Query().Get("format"); format != "" && format != "json" {
+		httpError(w, http.StatusBadRequest, fmt.Sprintf("parameter format: %q is not supported for alarms; the only format is \"json\" (the default)", format))
 		return
 	}
 	list, err := s.Alarms(r.Context(), asset, kind, q.from, q.to, q.since, q.limit, q.opts...)
