@@ -28,7 +28,11 @@
 // it was stored (a gateway sending milliseconds), is dead-lettered as
 // malformed before it can touch the sensor's state. Batches that start at
 // or before a sensor's last sample are dead-lettered as out-of-order;
-// batches entirely inside published windows as late.
+// batches entirely inside published windows as late. A message is
+// dead-lettered once: the checkpoint counts it as examined as soon as its
+// dead letter is stored (and is written then if no window is open), and
+// a later holder that reads it again to rebuild an open window counts it
+// as skipped in uc_messages_total instead of refusing it again.
 //
 // # Reduction and solve
 //

@@ -386,13 +386,34 @@ func unixString(t float64) string {
 	return time.Unix(int64(sec), int64(frac*1e9)).UTC().Format(time.RFC3339)
 }
 
+// deadLetter refuses message seq to uc.dlq.<reason>, once: a message
+// that an earlier holder's checkpoint counts as examined (seq <= LastSeq,
+// read again because it precedes a window that was still open) was
+// already refused, as the checkpoint moves past a message only after its
+// dead letter is stored; it is counted as skipped. Once stored, the
+// message counts as examined, and when no window is open (nor waiting
+// for commissioning) the checkpoint is written at once, so that a
+// successor resumes after it instead of refusing it again.
 func (w *assetWorker) deadLetter(reason, subj string, seq uint64, data []byte, cause error) error {
+	if seq <= w.ck.LastSeq {
+		w.svc.met.messages.WithLabelValues(w.asset.Name, "skipped").Inc()
+		return nil
+	}
 	w.svc.met.messages.WithLabelValues(w.asset.Name, "dead-letter").Inc()
 	w.svc.met.deadLetters.WithLabelValues(reason).Inc()
 	w.log.Warn("message refused", "reason", reason, "seq", seq, "err", cause)
 	ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
 	defer cancel()
-	return broker.DeadLetter(ctx, w.svc.stores.JS, reason, subj, seq, data, cause)
+	if err := broker.DeadLetter(ctx, w.svc.stores.JS, reason, subj, seq, data, cause); err != nil {
+		return err
+	}
+	if seq > w.asm.lastSeq {
+		w.asm.lastSeq = seq
+	}
+	if len(w.asm.open) == 0 && len(w.pending) == 0 {
+		return w.saveCheckpoint()
+	}
+	return nil
 }
 
 // closeReady publishes the windows that can be closed now.
