@@ -6,6 +6,7 @@ import (
 	"math"
 	"sort"
 	"strings"
+	"time"
 
 	"github.com/apache/arrow-go/v18/arrow/array"
 )
@@ -92,7 +93,8 @@ func Inspect(path string, opts ...Option) (*Inspection, error) {
 	}
 	defer r.Release()
 	pl := planOf(r)
-	in := &Inspection{File: path, Format: pl.format, Frame: pl.outFrame().String(), Meta: pl.meta, Warnings: []string{}}
+	in := &Inspection{File: path, Format: pl.format, Frame: pl.outFrame().String(), Meta: pl.meta,
+		Unused: []string{}, Columns: []ColumnStats{}, Time: TimeStats{Largest: []Gap{}}, Warnings: []string{}}
 	used := map[int]bool{}
 	for c := 0; c < nCanon; c++ {
 		if pl.src[c] >= 0 {
@@ -219,9 +221,12 @@ func Inspect(path string, opts ...Option) (*Inspection, error) {
 	return in, nil
 }
 
+// utcString formats Unix seconds as ISO 8601 UTC, rounded (not truncated)
+// to the millisecond shown, so the end of a log whose last sample is at
+// 59.9979999 s reads .998 like its duration.
 func utcString(t float64) string {
 	sec := math.Floor(t)
-	return unixTime(int64(sec), int64(math.Round((t-sec)*1e9))).UTC().Format("2006-01-02T15:04:05.999Z07:00")
+	return unixTime(int64(sec), int64(math.Round((t-sec)*1e9))).UTC().Round(time.Millisecond).Format("2006-01-02T15:04:05.999Z07:00")
 }
 
 func median(v []float64) float64 {

@@ -144,14 +144,17 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 		d.Signal = Signal{Mode: SignalDC}
 	}
 
-	// Depth reference: the fits' own, from the first that has one.
+	// Depth reference: the fits' own, from the first that has one. Its
+	// height is written rounded to the nanometre (nanoMetre) so that the
+	// files do not carry the noise of a mean or a subtraction (0.3 m read
+	// 0.30000000000000066); the fits and the route keep their own values.
 	d.DepthReference = DepthReference{Kind: DepthBelowSensors, SensorHeight: bs.SensorHeight}
 	for _, f := range fits {
 		if f.Result != nil {
 			if f.Result.DepthReference == "ReferenceZ" {
-				d.DepthReference = DepthReference{Kind: DepthBelowGround, Z: f.Result.ReferenceZ}
+				d.DepthReference = DepthReference{Kind: DepthBelowGround, Z: nanoMetre(f.Result.ReferenceZ)}
 			} else {
-				d.DepthReference.Z = f.Result.ReferenceZ
+				d.DepthReference.Z = nanoMetre(f.Result.ReferenceZ)
 			}
 			break
 		}
@@ -495,3 +498,7 @@ func signalRMS(res *inverse.Result) float64 {
 	}
 	return math.Sqrt(ss / float64(3*n))
 }
+
+// nanoMetre rounds a length in metres to the nearest nanometre, far below
+// any depth's uncertainty, for the document's derived reference heights.
+func nanoMetre(v float64) float64 { return math.Round(v*1e9) / 1e9 }

@@ -207,3 +207,31 @@ func cmplxRect(deg float64) complex128 {
 	s, c := math.Sincos(deg * math.Pi / 180)
 	return complex(c, s)
 }
+
+// The depth reference's height is written without the noise of the fits'
+// arithmetic: 0.1 + 0.2 is 0.30000000000000004 in IEEE 754 binary64 (the
+// nearest doubles to 0.1 and 0.2 sum one unit in the last place above the
+// nearest to 0.3), and the document should say 0.3.
+func TestBuildDepthReferenceRounded(t *testing.T) {
+	fits := kestrelMoor(t)
+	a, b := 0.1, 0.2 // variables: Go would add constants exactly
+	for _, f := range fits {
+		f.Result.ReferenceZ = a + b
+	}
+	if fits[0].Result.ReferenceZ == 0.3 {
+		t.Fatal("0.1 + 0.2 == 0.3: the check cannot fail")
+	}
+	head := Document{Tool: Tool{Name: "undercurrent", Version: "test"}, Title: "Kestrel Moor gas spur"}
+	d, err := Build(head, fits, &BuildSettings{Noise: 2})
+	if err != nil {
+		t.Fatal(err)
+	}
+	var buf bytes.Buffer
+	if err := WriteJSON(&buf, d); err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(buf.String(), "\"z_m\": 0.3\n") {
+		i := strings.Index(buf.String(), `"z_m"`)
+		t.Errorf("depth reference not 0.3: %.60s", buf.String()[max(i, 0):])
+	}
+}

@@ -5,6 +5,7 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
+	"math"
 )
 
 // GeoJSON frame markers, in the top-level "coordinate_frame" member.
@@ -38,7 +39,10 @@ const (
 //     (span_m), the group's ok and problem, and "conductor": 1 for the
 //     conductor the route follows, the track's number for a further
 //     conductor, absent for a source in no track;
-//   - "object": one Point per dipole source;
+//   - "object": one Point per dipole source (a magnetised object), with
+//     the group key, depth and cover and their sigmas as for a conductor,
+//     and the magnitude of its moment, moment_a_m2, with its sigma
+//     moment_sigma_a_m2, as its dipole-anomaly finding gives them;
 //   - "finding": one Point per finding at its position, with kind,
 //     severity, chainage range and message, and "conductor" when it is
 //     about a further conductor.
@@ -97,6 +101,12 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 			}
 			if s.Kind == KindDipole {
 				props["feature"] = "object"
+				if m, ms, ok := d.objectMoment(&s); ok {
+					props["moment_a_m2"] = roundSig(m, ms, 4)
+					if ms > 0 {
+						props["moment_sigma_a_m2"] = sigNum(ms)
+					}
+				}
 			} else {
 				props["feature"] = "conductor"
 				props["current_a"] = roundSig(s.Current, s.CurrentSigma, 4)
@@ -223,6 +233,39 @@ func roundSig(v, sigma float64, prec int) json.Number { return json.Number(fixSi
 
 // sigNum returns a sigma as a JSON number with six significant digits.
 func sigNum(v float64) json.Number { return json.Number(sig(v)) }
+
+// objectMoment returns the magnitude of a dipole source's moment, A m^2,
+// and its one-sigma uncertainty: the values of the dipole-anomaly finding
+// at the source's position, whose sigma allows for the correlations of the
+// moment's components with the position and the conductors' geometry.
+// Without such a finding the magnitude comes from the moment vector and
+// its sigma from the per-axis sigmas by first-order propagation, taking
+// the axes as independent (zero when they are not given).
+func (d *Document) objectMoment(s *Source) (m, sigma float64, ok bool) {
+	for _, f := range d.Findings {
+		if f.Kind != "dipole-anomaly" || f.Position != s.Point {
+			continue
+		}
+		for _, v := range f.Values {
+			if v.Name == "moment" {
+				return v.Value, v.Sigma, true
+			}
+		}
+	}
+	if s.Moment == nil {
+		return 0, 0, false
+	}
+	v := *s.Moment
+	m = math.Sqrt(v[0]*v[0] + v[1]*v[1] + v[2]*v[2])
+	if s.MomentSigma != nil && m > 0 {
+		var ss float64
+		for a, sa := range *s.MomentSigma {
+			ss += (v[a] / m * sa) * (v[a] / m * sa)
+		}
+		sigma = math.Sqrt(ss)
+	}
+	return m, sigma, true
+}
 
 // routeFeature is a route's stations as a LineString, with props and the
 // route's feature, length and station count as properties.

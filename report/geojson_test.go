@@ -124,3 +124,83 @@ func minimalDoc() *Document {
 		Groups:         []Group{{Points: 10, OK: true}},
 	}
 }
+
+// The drum beside the Fenwick Lane cable (dipole_test.go: simulated with
+// the point-dipole field of Jackson, Classical Electrodynamics, eq. 5.56)
+// appears in the GeoJSON as an "object" Point with the magnitude of its
+// moment and its sigma, as its finding gives them, within 4 sigma of the
+// true |m| = |(0.5, 0.3, -1.05)| A m^2, and its depth.
+func TestGeoJSONObjectMoment(t *testing.T) {
+	d, err := Build(Document{}, drumFits(t), &BuildSettings{Noise: drumNoise})
+	if err != nil {
+		t.Fatal(err)
+	}
+	var want Value
+	for _, f := range d.Findings {
+		for _, v := range f.Values {
+			if f.Kind == "dipole-anomaly" && v.Name == "moment" {
+				want = v
+			}
+		}
+	}
+	if want.Sigma <= 0 {
+		t.Fatalf("no dipole-anomaly finding with a moment: %+v", d.Findings)
+	}
+	var buf bytes.Buffer
+	if err := WriteGeoJSON(&buf, d); err != nil {
+		t.Fatal(err)
+	}
+	var fc struct {
+		Features []struct {
+			Properties map[string]any `json:"properties"`
+		} `json:"features"`
+	}
+	if err := json.Unmarshal(buf.Bytes(), &fc); err != nil {
+		t.Fatal(err)
+	}
+	trueM := math.Sqrt(drumMoment[0]*drumMoment[0] + drumMoment[1]*drumMoment[1] + drumMoment[2]*drumMoment[2])
+	var objects int
+	for _, f := range fc.Features {
+		p := f.Properties
+		if p["feature"] != "object" {
+			continue
+		}
+		objects++
+		m, ok1 := p["moment_a_m2"].(float64)
+		ms, ok2 := p["moment_sigma_a_m2"].(float64)
+		if !ok1 || !ok2 {
+			t.Fatalf("object lacks moment_a_m2 or moment_sigma_a_m2: %v", p)
+		}
+		if math.Abs(m-want.Value) > 0.01*want.Sigma || math.Abs(ms-want.Sigma) > 1e-5*want.Sigma {
+			t.Errorf("object moment %g ± %g, finding %g ± %g", m, ms, want.Value, want.Sigma)
+		}
+		if math.Abs(m-trueM) > 4*ms {
+			t.Errorf("object moment %g ± %g A m^2, true %g", m, ms, trueM)
+		}
+		if dep, ok := p["depth_m"].(float64); !ok || math.Abs(dep-(-drumPos[2])) > 4*p["depth_sigma_m"].(float64) {
+			t.Errorf("object depth %v ± %v, true %g", p["depth_m"], p["depth_sigma_m"], -drumPos[2])
+		}
+	}
+	if objects != 1 {
+		t.Errorf("%d object features, want 1", objects)
+	}
+}
+
+// Without a finding, an object's moment magnitude comes from its vector:
+// |(3, 4, 0)| = 5 A m^2, and first-order propagation with axis sigmas
+// (0.3, 0.4, 1) gives sqrt((0.6*0.3)^2 + (0.8*0.4)^2 + 0) = sqrt(0.1348)
+// = 0.367151 A m^2 (by hand).
+func TestGeoJSONObjectMomentFromVector(t *testing.T) {
+	d := minimalDoc()
+	m, ms := [3]float64{3, 4, 0}, [3]float64{0.3, 0.4, 1}
+	d.Groups[0].Sources = []Source{{Kind: KindDipole, Point: [3]float64{1, 2, -0.8}, Depth: 0.8, DepthSigma: 0.05, Moment: &m, MomentSigma: &ms}}
+	var buf bytes.Buffer
+	if err := WriteGeoJSON(&buf, d); err != nil {
+		t.Fatal(err)
+	}
+	for _, want := range []string{`"feature":"object"`, `"moment_a_m2":5.000`, `"moment_sigma_a_m2":0.367151`} {
+		if !strings.Contains(buf.String(), want) {
+			t.Errorf("GeoJSON lacks %s:\n%s", want, buf.String())
+		}
+	}
+}

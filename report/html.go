@@ -123,14 +123,7 @@ func newView(d *Document) (*view, error) {
 	if d.Signal.Mode == SignalAC {
 		v.SignalText = fmt.Sprintf("AC at %g Hz, %g s windows; currents are RMS", d.Signal.FrequencyHz, d.Signal.WindowS)
 	}
-	keys := make([]string, 0, len(d.Settings))
-	for k := range d.Settings {
-		keys = append(keys, k)
-	}
-	sort.Strings(keys)
-	for _, k := range keys {
-		v.Settings = append(v.Settings, [2]string{k, d.Settings[k]})
-	}
+	v.Settings = settingRows(d.Settings)
 	v.summarise()
 	for i, f := range d.Findings {
 		var vals []string
@@ -150,6 +143,72 @@ func newView(d *Document) (*view, error) {
 		return nil, err
 	}
 	return v, nil
+}
+
+// settingShown are the options of a run that the rows above the settings
+// list already say in words (signal, depth reference, cover uncertainty,
+// minimum cover, corrections, the page's title): each is shown once.
+var settingShown = map[string]bool{
+	"freq": true, "window": true, "sensor-height": true, "reference-z": true, "ground-sigma": true,
+	"min-cover": true, "cover-code": true, "calibration": true, "base": true, "title": true,
+}
+
+// settingWords names the other options of a run in words.
+var settingWords = map[string]string{
+	"count":               "Conductors per group",
+	"group-by":            "Groups fitted separately, by column",
+	"noise":               "Reading noise per axis, nT",
+	"robust":              "Outlying readings down-weighted",
+	"despike":             "Spikes removed",
+	"step-k":              "Current steps reported beyond, in standard deviations",
+	"column":              "Columns mapped",
+	"columns":             "Columns mapped",
+	"unit":                "Column units",
+	"units":               "Column units",
+	"delimiter":           "Field delimiter",
+	"comment":             "Comment lines start with",
+	"header":              "Header line",
+	"frame":               "Frame of the readings",
+	"origin":              "Origin of local positions",
+	"decimal-comma":       "Decimal comma",
+	"allow-unterminated":  "Arrow stream without its end marker read",
+	"time-order":          "Time order",
+	"iaga-baseline-frame": "IAGA-2002 baseline frame",
+	"drop-missing":        "Readings with missing values dropped",
+}
+
+// settingRows lists the options of a run for the report, each once and in
+// words, sorted by their wording: those the rows above already say are left
+// out, true and false read yes and no, and an option without wording shows
+// its name with spaces for hyphens.
+func settingRows(set map[string]string) [][2]string {
+	var rows [][2]string
+	for k, val := range set {
+		if settingShown[k] {
+			continue
+		}
+		name, ok := settingWords[k]
+		if !ok {
+			name = strings.ReplaceAll(k, "-", " ")
+			if name != "" {
+				name = strings.ToUpper(name[:1]) + name[1:]
+			}
+		}
+		switch val {
+		case "true":
+			val = "yes"
+		case "false":
+			val = "no"
+		}
+		rows = append(rows, [2]string{name, val})
+	}
+	sort.Slice(rows, func(i, j int) bool {
+		if rows[i][0] != rows[j][0] {
+			return rows[i][0] < rows[j][0]
+		}
+		return rows[i][1] < rows[j][1]
+	})
+	return rows
 }
 
 func depthRefText(d *Document) string {

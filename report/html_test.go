@@ -186,3 +186,43 @@ func TestHTMLGroundSigma(t *testing.T) {
 		}
 	}
 }
+
+// The settings list says each option of the run once, in words: the
+// minimum cover, its code, the AC window and the sensor height are in
+// their own rows above it, not repeated as the flags' names.
+func TestHTMLSettingsOnce(t *testing.T) {
+	d := fenwickLane(false)
+	d.Settings = map[string]string{
+		"min-cover": "0.6", "cover-code": "NEC Table 300.5", "sensor-height": "0.3", "freq": "50", "window": "0.1",
+		"group-by": "traverse", "count": "auto", "robust": "true",
+	}
+	var buf bytes.Buffer
+	if err := WriteHTML(&buf, d); err != nil {
+		t.Fatal(err)
+	}
+	page := buf.String()
+	i := strings.Index(page, "<h2>Data, corrections and settings</h2>")
+	j := strings.Index(page[max(i, 0):], "</dl>")
+	if i < 0 || j < 0 {
+		t.Fatal("page lacks the settings list")
+	}
+	list := page[i : i+j]
+	for _, bad := range []string{"<dt>min-cover", "<dt>cover-code", "<dt>sensor-height", "<dt>freq", "<dt>window", "<dt>group-by", "<dt>count", "<dt>robust"} {
+		if strings.Contains(list, bad) {
+			t.Errorf("settings list shows the raw flag %q:\n%s", bad[4:], list)
+		}
+	}
+	if n := strings.Count(list, "NEC Table 300.5"); n != 1 {
+		t.Errorf("the cover code appears %d times in the settings list, want once:\n%s", n, list)
+	}
+	for _, want := range []string{
+		"<dt>Minimum cover</dt><dd>0.60 m (NEC Table 300.5)</dd>",
+		"<dt>Groups fitted separately, by column</dt><dd>traverse</dd>",
+		"<dt>Conductors per group</dt><dd>auto</dd>",
+		"<dt>Outlying readings down-weighted</dt><dd>yes</dd>",
+	} {
+		if !strings.Contains(list, want) {
+			t.Errorf("settings list lacks %q:\n%s", want, list)
+		}
+	}
+}

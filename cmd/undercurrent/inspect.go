@@ -126,10 +126,11 @@ func plural(n int, word string) string {
 	return fmt.Sprintf("%d %ss", n, word)
 }
 
-// utcTime formats Unix seconds as ISO 8601 UTC to the millisecond.
+// utcTime formats Unix seconds as ISO 8601 UTC, rounded (not truncated)
+// to the millisecond shown.
 func utcTime(t float64) string {
 	sec := math.Floor(t)
-	return time.Unix(int64(sec), int64(math.Round((t-sec)*1e9))).UTC().Format("2006-01-02T15:04:05.999Z")
+	return time.Unix(int64(sec), int64(math.Round((t-sec)*1e9))).UTC().Round(time.Millisecond).Format("2006-01-02T15:04:05.999Z")
 }
 
 func printInspection(w io.Writer, in *ingest.Inspection) {

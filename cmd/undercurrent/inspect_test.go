@@ -136,3 +136,35 @@ func TestInspectErrors(t *testing.T) {
 		})
 	}
 }
+
+// A 60 s Harrow Fen log at 500 Hz from 06:00:00Z: the end reads like the
+// duration, rounded to the milliseconds shown (RFC 3339 time-secfrac), and
+// --json writes empty lists as [] (RFC 8259 §5), not null.
+func TestInspectRoundedEndAndEmptyLists(t *testing.T) {
+	const start = 1796104800 // 2026-12-01T06:00:00Z, by `date -u -d 2026-12-01T06:00:00Z +%s`
+	var b strings.Builder
+	b.WriteString("time,bx,by,bz\n")
+	for i := 0; i < 30000; i++ {
+		fmt.Fprintf(&b, "%.17g,1000,2000,-45000\n", float64(start)+float64(i)*0.002)
+	}
+	p := ingestTemp(t, "harrow-fen.csv", b.String())
+	code, out, errOut := ingestRun(t, "inspect", p)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errOut)
+	}
+	if want := "2026-12-01T06:00:00Z to 2026-12-01T06:00:59.998Z (59.998 s)"; !strings.Contains(out, want) {
+		t.Errorf("output lacks %q:\n%s", want, out)
+	}
+	code, out, errOut = ingestRun(t, "inspect", "--json", p)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errOut)
+	}
+	if strings.Contains(out, "null") {
+		t.Errorf("JSON holds null:\n%s", out)
+	}
+	for _, want := range []string{`"unused_columns": []`, `"largest_gaps": []`} {
+		if !strings.Contains(out, want) {
+			t.Errorf("JSON lacks %s:\n%s", want, out)
+		}
+	}
+}
