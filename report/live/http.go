@@ -266,7 +266,9 @@ type query struct {
 
 func parseQuery(r *http.Request) (query, error) {
 	q := query{from: -1e300, to: 1e300, limit: DefaultQueryLimit}
-	for _, k := range []string{"from", "to", "since", "limit"} {
+	// Every parameter of the queries, given empty, is refused rather than
+	// read as not given (asset= would otherwise list every asset's alarms).
+	for _, k := range []string{"from", "to", "since", "limit", "asset", "kind", "format", "revisions"} {
 		if vs, ok := r.URL.Query()[k]; ok && (len(vs) == 0 || vs[0] == "") {
 			return q, fmt.Errorf("parameter %s is empty: give a value or leave it out", k)
 		}
