@@ -109,21 +109,9 @@ func TestReplayTimeOrder(t *testing.T) {
 		t.Fatal(err)
 	}
 	write := func(name string, order []int) string {
-		re := *s
-		pick := func(v []float64) []float64 {
-			out := make([]float64, len(order))
-			for k, i := range order {
-				out[k] = v[i]
-			}
-			return out
-		}
-		re.Time, re.X, re.Y, re.Z, re.Bx, re.By, re.Bz = pick(s.Time), pick(s.X), pick(s.Y), pick(s.Z), pick(s.Bx), pick(s.By), pick(s.Bz)
-		re.Group = make([]string, len(order))
-		for k, i := range order {
-			re.Group[k] = s.Group[i]
-		}
+		re := reordered(s, order)
 		p := filepath.Join(dir, name)
-		if err := ingest.WriteSamples(p, &re); err != nil {
+		if err := ingest.WriteSamples(p, re); err != nil {
 			t.Fatal(err)
 		}
 		return p

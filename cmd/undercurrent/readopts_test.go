@@ -32,22 +32,9 @@ func TestLocateTimeOrderPerGroup(t *testing.T) {
 	if len(front) == 0 || len(rest) == 0 {
 		t.Fatal("the log has one traverse")
 	}
-	order := append(front, rest...)
-	re := *s
-	pick := func(v []float64) []float64 {
-		out := make([]float64, len(order))
-		for k, i := range order {
-			out[k] = v[i]
-		}
-		return out
-	}
-	re.Time, re.X, re.Y, re.Z, re.Bx, re.By, re.Bz = pick(s.Time), pick(s.X), pick(s.Y), pick(s.Z), pick(s.Bx), pick(s.By), pick(s.Bz)
-	re.Group = make([]string, len(order))
-	for k, i := range order {
-		re.Group[k] = s.Group[i]
-	}
+	re := reordered(s, append(front, rest...))
 	reord := filepath.Join(dir, "reordered.csv")
-	if err := ingest.WriteSamples(reord, &re); err != nil {
+	if err := ingest.WriteSamples(reord, re); err != nil {
 		t.Fatal(err)
 	}
 	code, _, errOut := cli(t, "locate", "--group-by", "group", "--count", "1", reord)
@@ -121,4 +108,23 @@ func TestConvertUnterminatedStream(t *testing.T) {
 	if got.Len() != s.Len() {
 		t.Errorf("%d rows, want %d", got.Len(), s.Len())
 	}
+}
+
+// reordered returns the rows of s (time, position, field and group) in the
+// given order.
+func reordered(s *ingest.Samples, order []int) *ingest.Samples {
+	re := *s
+	pick := func(v []float64) []float64 {
+		out := make([]float64, len(order))
+		for k, i := range order {
+			out[k] = v[i]
+		}
+		return out
+	}
+	re.Time, re.X, re.Y, re.Z, re.Bx, re.By, re.Bz = pick(s.Time), pick(s.X), pick(s.Y), pick(s.Z), pick(s.Bx), pick(s.By), pick(s.Bz)
+	re.Group = make([]string, len(order))
+	for k, i := range order {
+		re.Group[k] = s.Group[i]
+	}
+	return &re
 }

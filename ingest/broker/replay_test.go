@@ -7,6 +7,8 @@ import (
 	"testing"
 	"time"
 
+	"github.com/nats-io/nats.go/jetstream"
+
 	"undercurrent/ingest"
 )
 
@@ -119,17 +121,7 @@ func TestReplay(t *testing.T) {
 	if testing.Short() {
 		t.Skip("starts a broker")
 	}
-	ctx, cancel := context.WithTimeout(context.Background(), 30*time.Second)
-	defer cancel()
-	s := startTestServer(t, ServerConfig{MQTTPort: -1})
-	_, js := connectJS(t, s.ClientURL(), Auth{})
-	if _, err := Setup(ctx, js, StreamSettings{Memory: true}); err != nil {
-		t.Fatal(err)
-	}
-	bs, err := SplitSamples(groupedLog(50), "fenwick-lane", "", 0.1)
-	if err != nil {
-		t.Fatal(err)
-	}
+	ctx, js, bs := replaySetup(t)
 	var calls int
 	st, err := Replay(ctx, js, bs, &ReplaySettings{Speed: 100, Encoding: ContentArrow, Shift: 10, Progress: func(d, n int) { calls++ }})
 	if err != nil {
@@ -164,17 +156,7 @@ func TestReplayHoldsBack(t *testing.T) {
 	if testing.Short() {
 		t.Skip("starts a broker")
 	}
-	ctx, cancel := context.WithTimeout(context.Background(), 30*time.Second)
-	defer cancel()
-	s := startTestServer(t, ServerConfig{MQTTPort: -1})
-	_, js := connectJS(t, s.ClientURL(), Auth{})
-	if _, err := Setup(ctx, js, StreamSettings{Memory: true}); err != nil {
-		t.Fatal(err)
-	}
-	bs, err := SplitSamples(groupedLog(50), "fenwick-lane", "", 0.1)
-	if err != nil {
-		t.Fatal(err)
-	}
+	ctx, js, bs := replaySetup(t)
 	now := float64(time.Now().UnixNano()) / 1e9
 	// Shifted to start 0.2 s ahead of now, every batch is at least 0.2 s
 	// ahead of the clock when it is due.
@@ -194,4 +176,22 @@ func TestReplayHoldsBack(t *testing.T) {
 	if st.HeldBack != 0 {
 		t.Errorf("an hour in the past: %d batches held back", st.HeldBack)
 	}
+}
+
+// replaySetup starts a broker with the pipeline's streams (in memory) and
+// splits groupedLog(50) into 0.1 s batches to replay into it.
+func replaySetup(t *testing.T) (context.Context, jetstream.JetStream, []*Batch) {
+	t.Helper()
+	ctx, cancel := context.WithTimeout(context.Background(), 30*time.Second)
+	t.Cleanup(cancel)
+	s := startTestServer(t, ServerConfig{MQTTPort: -1})
+	_, js := connectJS(t, s.ClientURL(), Auth{})
+	if _, err := Setup(ctx, js, StreamSettings{Memory: true}); err != nil {
+		t.Fatal(err)
+	}
+	bs, err := SplitSamples(groupedLog(50), "fenwick-lane", "", 0.1)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return ctx, js, bs
 }
