@@ -56,6 +56,10 @@ type BuildSettings struct {
 	GroundSigma float64
 	// StepK is route.Settings.StepK: 0 means 3.
 	StepK float64
+	// MinStep is route.Settings.MinStep: the smallest change in current
+	// reported as a step, a fraction of the current; 0 means 0.02, a
+	// negative value reports every significant change as a step.
+	MinStep float64
 	// Noise is the reading noise the fits were given (inverse.Problem
 	// Sigma), nT; 0 when they estimated it. It is the yardstick for
 	// calling a group's fit poor: with 0 the median of the groups' own
@@ -177,7 +181,7 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 		}
 	}
 
-	rs := &route.Settings{StepK: bs.StepK, MinCover: bs.MinCover, CoverCode: bs.CoverCode, GroundSigma: bs.GroundSigma}
+	rs := &route.Settings{StepK: bs.StepK, MinStep: bs.MinStep, MinCover: bs.MinCover, CoverCode: bs.CoverCode, GroundSigma: bs.GroundSigma}
 	d.DepthReference.GroundSigma = bs.GroundSigma
 	if d.DepthReference.Kind == DepthBelowSensors {
 		rs.SensorHeight = bs.SensorHeight
@@ -271,7 +275,7 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int) (Group, route
 	g.OK = (res.Status.Converged() || res.Status == inverse.Stalled) && len(res.Sources) > 0
 	g.Notes = append(g.Notes, res.Notes...)
 	for _, c := range res.Criteria {
-		g.Criteria = append(g.Criteria, Criterion{Count: c.Count, AIC: c.AIC, BIC: c.BIC, RSS: c.RSS, Chosen: c.Chosen})
+		g.Criteria = append(g.Criteria, Criterion{Count: c.Count, AIC: c.AIC, BIC: c.BIC, RSS: c.RSS, Chosen: c.Chosen, Rejected: c.Rejected})
 	}
 	for _, s := range res.Sources {
 		g.Sources = append(g.Sources, buildSource(s, pts, ac))

@@ -241,6 +241,10 @@ type Criterion struct {
 	BIC    float64 `json:"bic"`
 	RSS    float64 `json:"rss_nt2"`
 	Chosen bool    `json:"chosen,omitempty"`
+	// Rejected says why the fit stopped adding conductors at this count
+	// (the criterion did not fall, or a guard against over-fitting, such
+	// as a current within its noise); empty for the counts it accepted.
+	Rejected string `json:"rejected,omitempty"`
 }
 
 // Source kinds.

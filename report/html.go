@@ -161,6 +161,7 @@ var settingWords = map[string]string{
 	"robust":              "Outlying readings down-weighted",
 	"despike":             "Spikes removed",
 	"step-k":              "Current steps reported beyond, in standard deviations",
+	"min-step":            "Smallest change in current taken as a step, per cent",
 	"column":              "Columns mapped",
 	"columns":             "Columns mapped",
 	"unit":                "Column units",

@@ -94,6 +94,7 @@ func runDemo(ctx context.Context, out string, stdout, progress io.Writer) error 
 		sensorHeight: sc.Sensor.Height,
 		groundSigma:  0.02,
 		minCover:     0.6,
+		minStep:      2,
 		coverCode:    "UK 11 kV distribution practice, 600-700 mm",
 		title:        "Fenwick Lane 11 kV cable route (demo)",
 		keepNames:    []string{demoLog},

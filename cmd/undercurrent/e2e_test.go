@@ -61,6 +61,11 @@ type resultDoc struct {
 		Background [3]float64  `json:"background_nt"`
 		OK         bool        `json:"ok"`
 		Sources    []docSource `json:"sources"`
+		Criteria   []struct {
+			Count    int    `json:"count"`
+			Chosen   bool   `json:"chosen"`
+			Rejected string `json:"rejected"`
+		} `json:"criteria"`
 	} `json:"groups"`
 	Findings   []docFinding `json:"findings"`
 	Conductors []struct {
@@ -540,6 +545,25 @@ func TestDemo(t *testing.T) {
 	}
 	if len(doc.Groups) != 31 {
 		t.Errorf("%d groups, want 31 traverses", len(doc.Groups))
+	}
+	// Each automatic count stops at a count it rejects, and says why
+	// (or at the most it may try, which it then chooses: T07's refit
+	// with the magnetised object).
+	for _, g := range doc.Groups {
+		chosen := 0
+		for i, c := range g.Criteria {
+			if c.Chosen {
+				chosen++
+			}
+			if last := i == len(g.Criteria)-1; last && !c.Chosen && c.Rejected == "" {
+				t.Errorf("%s: the count stopped at %d lines without saying why: %+v", g.Key, c.Count, g.Criteria)
+			} else if !last && c.Rejected != "" {
+				t.Errorf("%s: %d lines rejected (%s) but more were tried", g.Key, c.Count, c.Rejected)
+			}
+		}
+		if chosen != 1 {
+			t.Errorf("%s: %d counts chosen", g.Key, chosen)
+		}
 	}
 	var fault, shallow, object bool
 	for _, f := range doc.Findings {

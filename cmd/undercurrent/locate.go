@@ -46,6 +46,7 @@ type locateOptions struct {
 	robust       bool
 	despike      bool
 	stepK        float64
+	minStep      float64
 	title        string
 	workers      int
 	// read holds the input flags shared by every command that reads logs.
@@ -85,6 +86,7 @@ func (o *locateOptions) setFlags(fs *pflag.FlagSet) {
 	fs.BoolVar(&o.robust, "robust", false, "down-weight outlying readings (Huber weights)")
 	fs.BoolVar(&o.despike, "despike", false, "remove spikes (Hampel filter) before fitting")
 	fs.Float64Var(&o.stepK, "step-k", 0, "report a step in current when it exceeds `K` standard deviations (default 3)")
+	fs.Float64Var(&o.minStep, "min-step", 2, "report a change in current as a step only when it is at least `PCT` per cent of the current; a smaller change beyond K sigma is reported as information (the straight-line model's error near a change of depth or a bend is about 1%); 0 reports every change beyond K sigma as a step")
 	fs.StringVar(&o.title, "title", "", "title of the report (default: the site named in the log, or the log's name)")
 	fs.IntVar(&o.workers, "workers", 0, "fit `N` groups at a time (default: the number of CPUs)")
 	o.read.add(fs)
@@ -126,6 +128,9 @@ func (o *locateOptions) check(fs *pflag.FlagSet) error {
 	}
 	if o.stepK < 0 || math.IsNaN(o.stepK) {
 		return usageErrorf("--step-k %g: want a positive number of standard deviations", o.stepK)
+	}
+	if !(o.minStep >= 0 && o.minStep < 100) {
+		return usageErrorf("--min-step %g: want a percentage from 0 to under 100", o.minStep)
 	}
 	if o.workers < 0 {
 		return usageErrorf("--workers %d: want a positive number", o.workers)
@@ -709,6 +714,7 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 			CoverCode:    o.coverCode,
 			GroundSigma:  o.groundSigma,
 			StepK:        o.stepK,
+			MinStep:      minStepFraction(o.minStep),
 			Noise:        o.noise,
 		})
 	})
@@ -972,4 +978,13 @@ func checkParentDir(path string) error {
 		return usageErrorf("output directory %s is not a directory", parent)
 	}
 	return nil
+}
+
+// minStepFraction turns --min-step (per cent, 0 for none) into
+// report.BuildSettings.MinStep (a fraction, negative for none).
+func minStepFraction(pct float64) float64 {
+	if pct == 0 {
+		return -1
+	}
+	return pct / 100
 }

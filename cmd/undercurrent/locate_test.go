@@ -80,6 +80,8 @@ func TestLocateBadInput(t *testing.T) {
 		{"min cover without ground", []string{"--min-cover", "0.6", good}, 2, []string{"--sensor-height", "--reference-z"}},
 		{"ground sigma without ground", []string{"--ground-sigma", "0.02", good}, 2, []string{"--ground-sigma", "--sensor-height"}},
 		{"negative ground sigma", []string{"--sensor-height", "0.3", "--ground-sigma", "-0.02", good}, 2, []string{"--ground-sigma -0.02"}},
+		{"negative min step", []string{"--min-step", "-1", good}, 2, []string{"--min-step -1"}},
+		{"min step of the whole current", []string{"--min-step", "100", good}, 2, []string{"--min-step 100"}},
 		{"both ground references", []string{"--reference-z", "0", "--sensor-height", "0.3", good}, 2, []string{"not both"}},
 		{"negative frequency", []string{"--freq", "-50", good}, 2, []string{"--freq"}},
 		{"missing group column", []string{"--group-by", "traverse", good}, 1, []string{"traverse"}},

@@ -10,6 +10,11 @@ const (
 	// KindCurrentStep is a change in current between two stations larger
 	// than its uncertainty: current leaving (or joining) the conductor.
 	KindCurrentStep Kind = "current-step"
+	// KindCurrentChange is a change in current larger than its
+	// uncertainty but smaller than Settings.MinStep of the current: at that
+	// size more likely the straight-line model's error near a change of
+	// depth or a bend than current leaving or joining. Information only.
+	KindCurrentChange Kind = "current-change"
 	// KindCurrentAnomaly is a station whose current departs from both
 	// neighbours alike: a local disturbance rather than a step.
 	KindCurrentAnomaly Kind = "current-anomaly"

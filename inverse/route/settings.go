@@ -9,6 +9,16 @@ type Settings struct {
 	// must exceed, after removing the smooth trend, to be reported as a
 	// step. Zero means 3.
 	StepK float64
+	// MinStep is the smallest change in current reported as a step, as a
+	// fraction of the larger of the levels either side. A significant
+	// change below it is reported as information (KindCurrentChange), not
+	// as current leaving or joining: the straight-line model misses a
+	// conductor that changes depth or bends within a few depths of a
+	// traverse, and the currents fitted there are off by a per cent or so,
+	// a bias the fits' sigmas do not carry and one that neighbouring
+	// stations share, so that it passes the step test. Zero means 0.02; a
+	// negative value reports every significant change as a step.
+	MinStep float64
 	// TrendWindow is the number of neighbouring intervals on each side
 	// whose median gradient is taken as the smooth trend that is not a
 	// step. Zero means 2; a negative value disables the trend so that
@@ -70,6 +80,13 @@ func (s *Settings) stepK() float64 {
 		return 3
 	}
 	return s.StepK
+}
+
+func (s *Settings) minStep() float64 {
+	if s == nil || s.MinStep == 0 {
+		return 0.02
+	}
+	return max(s.MinStep, 0)
 }
 
 func (s *Settings) trendWindow() int {

@@ -206,11 +206,20 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64) []F
 		if sigma > 0 {
 			dec = max(0, 1-int(math.Floor(math.Log10(sigma))))
 		}
+		kind, severity := KindCurrentStep, SeverityWarning
 		msg := fmt.Sprintf("current %s by %.*f ± %.*f A between %s (chainage %.1f m) and %s (%.1f m)%s: %s%s",
 			verb, dec, math.Abs(size), dec, sigma, label(first), first.Chainage, label(second), second.Chainage, along, why, fed)
+		// A change under MinStep of the current is information, not a step
+		// (with the trend disabled every raw difference is a step, as
+		// asked).
+		if level := math.Max(up, down); set.trendWindow() > 0 && math.Abs(size) < set.minStep()*level {
+			kind, severity = KindCurrentChange, SeverityInfo
+			msg = fmt.Sprintf("current %s by %.*f ± %.*f A (%.2g%%) between %s (chainage %.1f m) and %s (%.1f m)%s, beyond its sigma but under the %.3g%% taken as a step: at that size more likely the straight-line model's error, where the conductor changes depth or bends within a few depths of a traverse, than current leaving or joining (traverses closer together there would tell)",
+				verb, dec, math.Abs(size), dec, sigma, 100*math.Abs(size)/level, label(first), first.Chainage, label(second), second.Chainage, along, 100*set.minStep())
+		}
 		f := Finding{
-			Kind:     KindCurrentStep,
-			Severity: SeverityWarning,
+			Kind:     kind,
+			Severity: severity,
 			From:     a.Chainage,
 			To:       b.Chainage,
 			Position: mid(u[big].Point, u[big+1].Point),
