@@ -122,7 +122,7 @@ func TestDemodulateFastPathMatchesGeneral(t *testing.T) {
 	for i, w := range res.Windows {
 		lo := i * 200
 		for k := 0; k < 3; k++ {
-			f, err := FitSine(c.Time[lo:lo+200], c.B[k][lo:lo+200], 50.02, nil)
+			f, err := FitSine(c.Time[lo:lo+200], c.B[k][lo:lo+200], 50.02, &SineSettings{Slope: true})
 			if err != nil {
 				t.Fatal(err)
 			}
@@ -145,7 +145,7 @@ func TestDemodulateFastPathMatchesGeneral(t *testing.T) {
 	}
 	for i, w := range res.Windows {
 		lo := i * 200
-		f, err := FitSine(c.Time[lo:lo+200], c.B[0][lo:lo+200], 50.02, nil)
+		f, err := FitSine(c.Time[lo:lo+200], c.B[0][lo:lo+200], 50.02, &SineSettings{Slope: true})
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -415,6 +415,79 @@ func TestWindowTravel(t *testing.T) {
 		simp := (f(w.Pos[0]-T) + 4*f(w.Pos[0]) + f(w.Pos[0]+T)) / 6
 		if math.Abs(simp-mean) > 1e-9*math.Abs(mean) {
 			t.Fatalf("window %d: Simpson %.12g, sample mean %.12g", i, simp, mean)
+		}
+	}
+}
+
+// TestDemodulateAmplitudeSlope: a sensor walked over a conductor sees the
+// tone's amplitude change within a window. Least squares over a window of
+// N whole cycles, of half-length T/2 about its mean time t̄, projects a
+// change a1 (t-t̄) cos(ω t + φ0) onto the constant-amplitude basis as
+// (ΔA, ΔB) = a1/(2ω) (sin φc, -cos φc) in the cos ω(t-t̄), sin ω(t-t̄)
+// coefficients, φc the phase at t̄: the projection is 2<τ cos(ωτ+φc) cos ωτ>
+// = -sin φc <τ sin 2ωτ> and <τ sin 2ωτ> = -cos(ωT)/(2ω) = -1/(2ω)
+// (integration by parts; derived here, a textbook calculus step). As an
+// RMS phasor referenced to absolute time that is
+// ΔP = i a1/(2√2 ω) exp(-i(2ω t̄ + φ0)). The default fit, with the slope
+// columns, must return the amplitude at t̄ exactly; the constant-amplitude
+// fit must show the predicted error (to the few per cent by which 40
+// samples a cycle differ from the integral).
+func TestDemodulateAmplitudeSlope(t *testing.T) {
+	const (
+		fs, f = 2000.0, 50.0
+		a0    = 100.0 // nT peak at the window's mean time
+		a1    = 400.0 // nT/s: 1 m/s over a field falling 4 nT per cm
+		t0    = 1000.0
+	)
+	w := 2 * math.Pi * f
+	for _, phi0 := range []float64{0, 0.7, 2.1, -1.3} {
+		for _, n := range []int{200, 205} { // 5 cycles, and 5.125
+			c := &Columns{Time: make([]float64, n)}
+			for k := range c.B {
+				c.B[k] = make([]float64, n)
+			}
+			var tm float64
+			for i := 0; i < n; i++ {
+				c.Time[i] = t0 + float64(i)/fs
+				tm += c.Time[i]
+			}
+			tm /= float64(n)
+			for i, ti := range c.Time {
+				y := (a0 + a1*(ti-tm)) * math.Cos(w*ti+phi0)
+				c.B[0][i] = 20000 + y
+				c.B[1][i] = -45000 + 0.5*y
+				c.B[2][i] = 3000
+			}
+			want := cmplx.Rect(a0/math.Sqrt2, phi0)
+			slope, err := DemodulateColumns(c, &DemodSettings{Freq: f, Window: float64(n) / fs})
+			if err != nil {
+				t.Fatal(err)
+			}
+			flat, err := DemodulateColumns(c, &DemodSettings{Freq: f, Window: float64(n) / fs, ConstantAmplitude: true})
+			if err != nil {
+				t.Fatal(err)
+			}
+			if len(slope.Windows) != 1 || len(flat.Windows) != 1 {
+				t.Fatalf("%d and %d windows, want 1", len(slope.Windows), len(flat.Windows))
+			}
+			got := slope.Windows[0].B[0]
+			if d := cmplx.Abs(got - want); d > 1e-9*a0 {
+				t.Errorf("phi0 %g, %d samples: slope fit %v, want %v (off by %.3g nT)", phi0, n, got, want, d)
+			}
+			if d := cmplx.Abs(slope.Windows[0].B[1] - want/2); d > 1e-9*a0 {
+				t.Errorf("phi0 %g, %d samples: slope fit on axis 1 off by %.3g nT", phi0, n, d)
+			}
+			errFlat := flat.Windows[0].B[0] - want
+			if n == 200 {
+				pred := complex(0, a1/(2*math.Sqrt2*w)) * cmplx.Rect(1, -(2*w*tm+phi0))
+				if d := cmplx.Abs(errFlat - pred); d > 0.05*cmplx.Abs(pred) {
+					t.Errorf("phi0 %g: constant-amplitude error %v, predicted %v", phi0, errFlat, pred)
+				}
+			} else if !(cmplx.Abs(errFlat) > 0.2*a1/(2*math.Sqrt2*w)) {
+				// Over a fraction of a cycle more the constant fit also
+				// errs in phase; it must still err by the order of a1/ω.
+				t.Errorf("phi0 %g, %d samples: constant-amplitude error only %.3g nT", phi0, n, cmplx.Abs(errFlat))
+			}
 		}
 	}
 }

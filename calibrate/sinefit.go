@@ -11,9 +11,10 @@ import (
 // SineFit is a least-squares sine fit to one series (IEEE Std 1057 and
 // IEEE Std 1241):
 //
-//	y(t) ≈ A cos ω(t-T0) + B sin ω(t-T0) + C [+ Σ harmonics] [+ D (t-T0)],
+//	y(t) ≈ A cos ω(t-T0) + B sin ω(t-T0) + C [+ Σ harmonics] [+ D (t-T0)]
+//	       [+ (t-t̄) (E cos ω(t-T0) + F sin ω(t-T0))],
 //
-// with ω = 2π Freq.
+// with ω = 2π Freq and t̄ the mean time (Slope holds E and F).
 type SineFit struct {
 	A, B, C float64
 	// Freq is the frequency fitted, Hz, and T0 the time origin of the
@@ -24,6 +25,11 @@ type SineFit struct {
 	Harmonics [][2]float64
 	// Drift is the linear coefficient D (only when asked for), per second.
 	Drift float64
+	// Slope holds the coefficients of (t-t̄) cos ω(t-T0) and
+	// (t-t̄) sin ω(t-T0), per second, t̄ the mean time (only when asked
+	// for): the fundamental's linear change across the fit. A and B are
+	// then its coefficients at t̄.
+	Slope [2]float64
 	// RMS is the root-mean-square residual and Sigma the residual standard
 	// deviation sqrt(RSS/(n-p)).
 	RMS, Sigma float64
@@ -59,12 +65,18 @@ type SineSettings struct {
 	Harmonics []int
 	// Drift adds a linear term for slow drift.
 	Drift bool
+	// Slope adds the columns (t-t̄) cos ω(t-T0) and (t-t̄) sin ω(t-T0), t̄
+	// the mean time: a linear change of the fundamental's amplitude and
+	// phase (DemodSettings.ConstantAmplitude). FitSine only: FitSine4
+	// refuses it, since with a frequency to fit the two are not told
+	// apart.
+	Slope bool
 	// MaxIter bounds the four-parameter iterations. Zero means 30.
 	MaxIter int
 }
 
-// FitSine fits the three-parameter model (plus optional harmonics and
-// drift) at the known frequency freq (Hz) to y sampled at times t (s),
+// FitSine fits the three-parameter model (plus optional harmonics, drift
+// and slope) at the known frequency freq (Hz) to y sampled at times t (s),
 // with the basis origin at t[0]. It panics if len(t) != len(y).
 func FitSine(t, y []float64, freq float64, set *SineSettings) (SineFit, error) {
 	if len(t) != len(y) {
@@ -77,19 +89,32 @@ func FitSine(t, y []float64, freq float64, set *SineSettings) (SineFit, error) {
 	if !(freq > 0) || math.IsInf(freq, 0) {
 		return SineFit{}, fmt.Errorf("calibrate: sine fit: frequency %g Hz is not positive", freq)
 	}
-	p := 3 + 2*len(ss.Harmonics)
+	q := 3 + 2*len(ss.Harmonics)
 	if ss.Drift {
-		p++
+		q++
+	}
+	p := q
+	if ss.Slope {
+		p += 2
 	}
 	if len(t) <= p {
 		return SineFit{}, fmt.Errorf("calibrate: sine fit: %d samples for %d parameters", len(t), p)
 	}
 	t0 := t[0]
+	var tm float64 // mean of t - t0
+	for _, ti := range t {
+		tm += ti - t0
+	}
+	tm /= float64(len(t))
 	X := mat.NewDense(len(t), p, nil)
 	row := make([]float64, p)
 	w := 2 * math.Pi * freq
 	for i, ti := range t {
-		basisRow(row, ti-t0, w, ss.Harmonics, ss.Drift)
+		basisRow(row[:q], ti-t0, w, ss.Harmonics, ss.Drift)
+		if ss.Slope {
+			tc := ti - t0 - tm
+			row[q], row[q+1] = tc*row[0], tc*row[1]
+		}
 		X.SetRow(i, row)
 	}
 	beta, rss, err := lstsq(X, y)
@@ -101,7 +126,10 @@ func FitSine(t, y []float64, freq float64, set *SineSettings) (SineFit, error) {
 		f.Harmonics = append(f.Harmonics, [2]float64{beta[3+2*j], beta[4+2*j]})
 	}
 	if ss.Drift {
-		f.Drift = beta[p-1]
+		f.Drift = beta[q-1]
+	}
+	if ss.Slope {
+		f.Slope = [2]float64{beta[q], beta[q+1]}
 	}
 	f.RMS = math.Sqrt(rss / float64(len(t)))
 	f.Sigma = math.Sqrt(rss / float64(len(t)-p))
@@ -161,6 +189,9 @@ func FitSine4(t, y []float64, freq0 float64, set *SineSettings) (SineFit, error)
 	}
 	if ss.MaxIter == 0 {
 		ss.MaxIter = 30
+	}
+	if ss.Slope {
+		return SineFit{}, errors.New("calibrate: four-parameter fit: a slope of the amplitude cannot be fitted with the frequency (the frequency is the slope of the phase)")
 	}
 	f, err := FitSine(t, y, freq0, &ss)
 	if err != nil {
