@@ -1,8 +1,16 @@
 package calibrate
 
 import (
+	"encoding/csv"
+	"errors"
 	"fmt"
+	"io"
 	"math"
+	"math/cmplx"
+	"os"
+	"sort"
+	"strconv"
+	"strings"
 )
 
 // Coil describes an induction coil for Faraday's law V = -N A μ dB/dt.
@@ -69,6 +77,188 @@ func CoilWindows(ws []Window, coil Coil) error {
 		for k := 0; k < 3; k++ {
 			ws[i].B[k] *= complex(0, 1e9/g)
 			ws[i].Sigma[k] *= 1e9 / g
+		}
+	}
+	return nil
+}
+
+// CoilSensitivity is a coil's complex sensitivity: Sensitivity returns H,
+// volts per tesla, with V = H B for the phasors of a sinusoid of frequency
+// freq Hz (phasors of y(t) = √2 Re(P exp(iωt)), as Demodulate returns
+// them). Coil (the ideal law) and *CoilResponse (a measured table)
+// implement it.
+type CoilSensitivity interface {
+	Sensitivity(freq float64) (complex128, error)
+}
+
+// Sensitivity returns the ideal coil's H = -i N A μ ω, V per T (Faraday's
+// law V = -N A μ dB/dt with d/dt = iω): the voltage lags the field by 90°.
+func (c Coil) Sensitivity(freq float64) (complex128, error) {
+	g, err := c.gain(freq)
+	if err != nil {
+		return 0, err
+	}
+	return complex(0, -g), nil
+}
+
+// CoilResponse is a coil's measured response, for coils that do not follow
+// the ideal law (a core whose permeability changes with frequency, the
+// coil's own resonance, an amplifier or filter in the output): at each
+// frequency the sensitivity |H| (V per T, amplitude over amplitude) and
+// the phase of H (degrees: how far the voltage leads the field; -90 for
+// the ideal coil V = -N A μ dB/dt).
+type CoilResponse struct {
+	Freq  []float64 // Hz, strictly increasing, at least two
+	Sens  []float64 // V per T, positive
+	Phase []float64 // degrees, each within 180° of the one before
+}
+
+// Sensitivity interpolates the table at freq Hz: log |H| linearly in log f
+// (exact for the ideal coil's |H| ∝ f, and for any power law between two
+// rows) and the phase linearly in log f. A frequency outside the table is
+// an error: the response is not extrapolated.
+func (r *CoilResponse) Sensitivity(freq float64) (complex128, error) {
+	n := len(r.Freq)
+	if n < 2 || len(r.Sens) != n || len(r.Phase) != n {
+		return 0, fmt.Errorf("calibrate: coil response: %d frequencies, %d sensitivities and %d phases: want at least two rows of each", n, len(r.Sens), len(r.Phase))
+	}
+	if !(freq > 0) || math.IsInf(freq, 0) {
+		return 0, fmt.Errorf("calibrate: coil response: frequency %g Hz must be positive", freq)
+	}
+	if freq < r.Freq[0] || freq > r.Freq[n-1] {
+		return 0, fmt.Errorf("calibrate: coil response: %g Hz is outside the table's %g-%g Hz (the response is not extrapolated)", freq, r.Freq[0], r.Freq[n-1])
+	}
+	// The first row whose frequency is at or above freq.
+	j := sort.SearchFloat64s(r.Freq, freq)
+	if j == 0 {
+		j = 1
+	}
+	i := j - 1
+	u := (math.Log(freq) - math.Log(r.Freq[i])) / (math.Log(r.Freq[j]) - math.Log(r.Freq[i]))
+	mag := math.Exp(math.Log(r.Sens[i]) + u*(math.Log(r.Sens[j])-math.Log(r.Sens[i])))
+	ph := r.Phase[i] + u*(r.Phase[j]-r.Phase[i])
+	return cmplx.Rect(mag, ph*math.Pi/180), nil
+}
+
+// Sensitivity units of a response table, by the name of its second column.
+var sensitivityColumns = map[string]float64{
+	"sensitivity_v_per_t":   1,
+	"sensitivity_v_per_nt":  1e9,
+	"sensitivity_mv_per_nt": 1e6,
+}
+
+// ReadCoilResponse reads a coil response table: CSV with a header line
+// naming the three columns
+//
+//	frequency_hz, sensitivity_v_per_t | sensitivity_v_per_nt | sensitivity_mv_per_nt, phase_deg
+//
+// (in that order; the sensitivity's name gives its unit), then one row per
+// frequency, frequencies strictly increasing; lines starting with # are
+// comments. Phases are unwrapped (each moved by whole turns to within 180°
+// of the one before), so a table may wrap them at ±180°. name is used in
+// messages.
+func ReadCoilResponse(rd io.Reader, name string) (*CoilResponse, error) {
+	cr := csv.NewReader(rd)
+	cr.Comment = '#'
+	cr.FieldsPerRecord = -1
+	cr.TrimLeadingSpace = true
+	fail := func(line int, format string, a ...any) error {
+		return fmt.Errorf("calibrate: coil response %s:%d: %s", name, line, fmt.Sprintf(format, a...))
+	}
+	head, err := cr.Read()
+	if errors.Is(err, io.EOF) {
+		return nil, fmt.Errorf("calibrate: coil response %s: empty: want a header line frequency_hz,sensitivity_v_per_nt,phase_deg and a row per frequency", name)
+	}
+	if err != nil {
+		return nil, fmt.Errorf("calibrate: coil response %s: %w", name, err)
+	}
+	line, _ := cr.FieldPos(0)
+	for i := range head {
+		head[i] = strings.ToLower(strings.TrimSpace(head[i]))
+	}
+	scale, ok := 0.0, len(head) == 3 && head[0] == "frequency_hz" && head[2] == "phase_deg"
+	if ok {
+		scale, ok = sensitivityColumns[head[1]]
+	}
+	if !ok {
+		return nil, fail(line, "header %q: want frequency_hz, then sensitivity_v_per_t, sensitivity_v_per_nt or sensitivity_mv_per_nt (the sensitivity's unit), then phase_deg (how far the voltage leads the field; -90 for an ideal coil)", strings.Join(head, ","))
+	}
+	r := &CoilResponse{}
+	for {
+		rec, err := cr.Read()
+		if errors.Is(err, io.EOF) {
+			break
+		}
+		if err != nil {
+			return nil, fmt.Errorf("calibrate: coil response %s: %w", name, err)
+		}
+		line, _ := cr.FieldPos(0)
+		if len(rec) != 3 {
+			return nil, fail(line, "%d values: want frequency, sensitivity and phase", len(rec))
+		}
+		var v [3]float64
+		for k, f := range rec {
+			x, err := strconv.ParseFloat(strings.TrimSpace(f), 64)
+			if err != nil || math.IsNaN(x) || math.IsInf(x, 0) {
+				return nil, fail(line, "%s %q is not a finite number", head[k], f)
+			}
+			v[k] = x
+		}
+		switch n := len(r.Freq); {
+		case !(v[0] > 0):
+			return nil, fail(line, "frequency %g Hz: want a positive frequency", v[0])
+		case n > 0 && !(v[0] > r.Freq[n-1]):
+			return nil, fail(line, "frequency %g Hz after %g Hz: want the frequencies strictly increasing", v[0], r.Freq[n-1])
+		case !(v[1] > 0):
+			return nil, fail(line, "%s %g: want a positive sensitivity", head[1], v[1])
+		}
+		ph := v[2]
+		if n := len(r.Phase); n > 0 {
+			ph -= 360 * math.Round((ph-r.Phase[n-1])/360)
+		}
+		r.Freq = append(r.Freq, v[0])
+		r.Sens = append(r.Sens, v[1]*scale)
+		r.Phase = append(r.Phase, ph)
+	}
+	if len(r.Freq) < 2 {
+		return nil, fmt.Errorf("calibrate: coil response %s: %d rows: want at least two frequencies to interpolate between", name, len(r.Freq))
+	}
+	return r, nil
+}
+
+// LoadCoilResponse reads a coil response table from a file
+// (ReadCoilResponse).
+func LoadCoilResponse(path string) (*CoilResponse, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, fmt.Errorf("calibrate: %w", err)
+	}
+	defer f.Close()
+	return ReadCoilResponse(f, path)
+}
+
+// SensitivityWindows converts demodulated windows of coil voltages (B and
+// Sigma in volts) to field in nT in place, each at its own frequency, with
+// B = V / H and Sigma = Sigma_V / |H| (H = s.Sensitivity(freq), V per T).
+// A window the sensitivity rejects (a frequency outside a table) leaves the
+// windows unchanged. With the ideal Coil it agrees with CoilWindows.
+func SensitivityWindows(ws []Window, s CoilSensitivity) error {
+	h := make([]complex128, len(ws))
+	for i, w := range ws {
+		var err error
+		if h[i], err = s.Sensitivity(w.Freq); err != nil {
+			return fmt.Errorf("calibrate: coil: window %d: %w", i, err)
+		}
+		if h[i] == 0 || cmplx.IsNaN(h[i]) || cmplx.IsInf(h[i]) {
+			return fmt.Errorf("calibrate: coil: window %d: sensitivity %v V/T at %g Hz", i, h[i], w.Freq)
+		}
+	}
+	for i := range ws {
+		inv := 1e9 / h[i]
+		m := cmplx.Abs(inv)
+		for k := 0; k < 3; k++ {
+			ws[i].B[k] *= inv
+			ws[i].Sigma[k] *= m
 		}
 	}
 	return nil

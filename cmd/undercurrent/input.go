@@ -48,7 +48,7 @@ const fieldUnits = "nT, pT, uT, mT, T, G or mG"
 
 func (f *readFlags) add(fs *pflag.FlagSet) {
 	fs.StringSliceVar(&f.columns, "column", nil, "map canonical columns to the file's names: `CANON=NAME`, e.g. bx=Bx_uT,time=t_s,group=traverse (repeatable)")
-	fs.StringSliceVar(&f.units, "unit", nil, "units of columns: `CANON=UNIT`, e.g. bx=uT,time=ms (field nT/pT/uT/mT/T/G/mG, length m/cm/mm/km/ft; repeatable)")
+	fs.StringSliceVar(&f.units, "unit", nil, "units of columns: `CANON=UNIT`, e.g. bx=uT,time=ms (field nT/pT/uT/mT/T/G/mG, or V/mV/uV/nV for induction coils with locate --coil; length m/cm/mm/km/ft; repeatable)")
 	fs.StringSliceVar(&f.columnsOld, "columns", nil, "same as --column")
 	fs.StringSliceVar(&f.unitsOld, "units", nil, "same as --unit")
 	_ = fs.MarkHidden("columns")
@@ -82,6 +82,14 @@ func (f *readFlags) options(fs *pflag.FlagSet) ([]ingest.Option, error) {
 		opts = append(opts, ingest.WithColumns(f.columns...))
 		if err := checkOption("--column", "column mapping ", ingest.WithColumns(f.columns...)); err != nil {
 			return nil, err
+		}
+	}
+	for _, u := range f.units {
+		for _, p := range strings.Split(u, ",") {
+			k, v, _ := strings.Cut(p, "=")
+			if _, volts := voltScale(v); volts && fieldAxis(k) >= 0 {
+				return nil, usageErrorf("--unit %s is a voltage: field columns in volts are induction coils' output, which only locate reads, given the coil with --coil turns=N,area=A[,mu=M] (or --coil-response FILE) and the AC frequency with --freq", strings.TrimSpace(p))
+			}
 		}
 	}
 	if len(f.units) > 0 {

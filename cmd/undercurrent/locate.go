@@ -49,6 +49,8 @@ type locateOptions struct {
 	minStep      float64
 	title        string
 	workers      int
+	// coil holds the induction-coil options (coil.go).
+	coil coilFlags
 	// read holds the input flags shared by every command that reads logs.
 	read readFlags
 
@@ -73,6 +75,7 @@ func (o *locateOptions) setFlags(fs *pflag.FlagSet) {
 	fs.StringVar(&o.base, "base", "", "subtract the diurnal variation recorded by the base station log `BASE` (any log format, IAGA-2002 too)")
 	fs.Float64Var(&o.freq, "freq", 0, "demodulate the AC field at `HZ` (50, 60, 16.7, 512...) and fit RMS currents with phase; the field's own frequency is then estimated from the log, and if it is off (a grid at 50.1 Hz) the log is demodulated at the estimate, with a warning saying so (too far off, it refuses and names the frequency found); without --freq the DC field is fitted (no frequency is estimated and AC is not looked for)")
 	fs.Float64Var(&o.window, "window", 0, "AC demodulation window, `S` seconds (default: ten cycles at 50 or 60 Hz; at any other frequency ten cycles or 0.1 s, whichever is longer, rounded up to a multiple of 0.1 s, so that the window holds whole cycles of the 50 or 60 Hz mains and they do not leak in)")
+	o.coil.add(fs)
 	fs.StringVar(&o.count, "count", "auto", "number of line conductors per fit, `N` (1-4) or auto")
 	fs.StringVar(&o.groupBy, "group-by", "", "fit each value of column `COL` separately (a traverse, a sensor, a time window) and build the along-route profile from the groups")
 	fs.BoolVar(&o.json, "json", false, "print the result document (JSON) on stdout")
@@ -172,7 +175,9 @@ func (o *locateOptions) check(fs *pflag.FlagSet) error {
 			}
 		})
 	}
-	return nil
+	// Last: it takes the coils' voltage units out of --unit, which the
+	// settings above record as given.
+	return o.coil.check(o)
 }
 
 func init() {
@@ -220,6 +225,21 @@ the Earth's field removed); impossibly far (below 1 pT or above 0.1 T, as
 an Earth field in tesla read as nT) it refuses, unless --unit gives the
 field's unit.
 
+With --coil turns=N,area=A[,mu=M] (or --coil-response FILE, a measured
+response) the field columns hold the voltages of induction coils, one per
+axis, in volts unless --unit says otherwise (bx=mV,by=mV,bz=mV; V, mV, uV
+or nV; a voltage unit without a coil is refused). A coil senses only a
+changing field, so it needs --freq, and it takes neither --calibration nor
+--base. The voltages are demodulated as a field would be and each window
+is then converted to field at its own frequency, its sigma too, before
+the fit: by Faraday's law V = -N A μ dB/dt, B = i V/(N A μ ω) (area in m²,
+mu the core's apparent relative permeability, default 1), or by the
+response table interpolated there. The Earth-field check above does not
+apply to volts; a log whose columns hold a steady value over 20 times
+their variation (a magnetometer's log given as a coil's) draws a warning
+instead. The coil and its parameters are recorded as the run's calibration
+in the result document and the report.
+
 Without --group-by every reading is fitted as one straight conductor with
 one current. When a log has a group column whose groups are traverses, or
 the readings run along the fitted line for more than 20 times its depth,
@@ -245,7 +265,9 @@ Examples:
   undercurrent locate --group-by group survey.csv
   undercurrent locate --base base.min --calibration cal.json --group-by group survey.csv -o results
   undercurrent locate --freq 50 --window 0.1 --group-by group --sensor-height 0.3 --min-cover 0.6 --cover-code "UK 11 kV practice" walk.parquet -o results
-  undercurrent locate --count 2 --json line7.csv > line7.json`,
+  undercurrent locate --count 2 --json line7.csv > line7.json
+  undercurrent locate --freq 50 --coil turns=4000,area=3e-4,mu=120 --unit bx=mV,by=mV,bz=mV --group-by group fenwick-lane-coil.csv -o results
+  undercurrent locate --freq 512 --coil-response coil-response.csv --group-by group fenwick-lane-coil.csv -o results`,
 		setFlags: o.setFlags,
 		run: func(ctx context.Context, fs *pflag.FlagSet, args []string, stdout, stderr io.Writer) error {
 			if len(args) == 0 {
@@ -367,6 +389,9 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (*survey, 
 		doc.Calibration = &report.Correction{File: o.calibration, Summary: cal.Summary()}
 		doc.Inputs = append(doc.Inputs, fileInput("calibration", o.calibration, 0))
 	}
+	if err := o.coil.load(doc); err != nil {
+		return nil, err
+	}
 	var base *ingest.Samples
 	if o.base != "" {
 		var err error
@@ -387,18 +412,25 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (*survey, 
 			sv.warnings = append(sv.warnings, fmt.Sprintf("%s: time goes backwards at %s (--time-order %s): the base log was put in time order for the base correction", o.base, plural(back, "row"), o.read.timeOrder))
 		}
 	}
-	opts := append([]ingest.Option(nil), o.readOpts...)
+	opts := append(append([]ingest.Option(nil), o.readOpts...), o.coil.readOptions()...)
 	if o.groupBy != "" && o.groupBy != ingest.ColGroup {
 		opts = append(opts, ingest.WithColumns(ingest.ColGroup+"="+o.groupBy))
 	}
 	index := map[string]*group{}
 	var baseNotes []string
 	for _, path := range logs {
-		s, warns, err := o.read.readLog(ctx, path, opts, true)
+		// A coil log's voltages are not checked against the Earth's field.
+		s, warns, err := o.read.readLog(ctx, path, opts, !o.coil.on())
 		if err != nil {
 			return nil, err
 		}
 		sv.warnings = append(sv.warnings, warns...)
+		if o.coil.on() {
+			o.coil.toVolts(s)
+			if w := coilSteadyWarning(path, s); w != "" {
+				sv.alerts = append(sv.alerts, w)
+			}
+		}
 		if s.X == nil || s.Y == nil || s.Z == nil {
 			return nil, fmt.Errorf("%s has no positions: locate needs x, y, z (or lat, lon, height) columns; map them with --column", path)
 		}
@@ -473,6 +505,9 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (*survey, 
 	if base != nil {
 		doc.BaseStation = &report.Correction{File: o.base, Summary: strings.Join(baseNotes, "; ")}
 	}
+	if o.coil.on() {
+		doc.Calibration = &report.Correction{File: o.coil.response, Summary: o.coil.summary(doc.Signal.FrequencyHz)}
+	}
 	if len(sv.groups) == 0 {
 		return nil, errors.New("no readings to fit")
 	}
@@ -525,6 +560,13 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 	}
 	if len(res.Windows) == 0 {
 		return fmt.Errorf("%s: no complete demodulation window: the log (or each group) is shorter than the window", s.Source)
+	}
+	if o.coil.on() {
+		// The windows hold the coils' voltages: field from here on, each
+		// window converted at its own frequency.
+		if err := o.coil.convert(res.Windows); err != nil {
+			return fmt.Errorf("%s: %w", s.Source, err)
+		}
 	}
 	if sv.doc.Signal.WindowS == 0 {
 		sv.doc.Signal = report.Signal{Mode: report.SignalAC, FrequencyHz: res.Freq, WindowS: win}
