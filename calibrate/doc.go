@@ -141,4 +141,9 @@
 // Faraday's law V = -N A μ dB/dt gives, for a sinusoid of frequency f,
 // |B| = |V| / (N A μ 2π f) and B = i V / (N A μ ω) as phasors (DOMAIN.md:
 // N = 1000, A = 1 cm², 50 Hz, 1 µT peak gives 3.14159e-5 V peak).
+// CoilWindows applies it to demodulated windows. A coil whose response
+// departs from the law (a resonance, a preamplifier) is given by a measured
+// table of sensitivity and phase against frequency (CoilResponse,
+// ReadCoilResponse), interpolated at each window's frequency and applied by
+// SensitivityWindows.
 package calibrate

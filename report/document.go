@@ -80,7 +80,8 @@ type Tool struct {
 
 // Input is one file read.
 type Input struct {
-	// Role is what the file was used for: "survey", "base", "calibration".
+	// Role is what the file was used for: "survey", "base", "calibration",
+	// "coil-response".
 	Role string `json:"role"`
 	// Path is the file name as given on the command line.
 	Path string `json:"path"`
