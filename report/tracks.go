@@ -52,7 +52,13 @@ import (
 //     taken nearest first (ties by track number, then by source), so the
 //     order in which the fit lists its sources does not matter and a group
 //     gives a track at most one source. A source left over starts a new
-//     track. A group with no source for a track leaves a gap in it.
+//     track. A group with no source for a track leaves a gap in it; after
+//     more than maxTrackGap groups in a row without one the track is
+//     closed, and a source beyond starts a new track: a conductor missed
+//     on that many traverses is no longer followed, and without the limit
+//     weak, deep sources that fits far apart each take up (a fit absorbing
+//     a bend or a change of depth) were linked across 13 traverses into a
+//     "conductor" with a step of its own.
 //   - Tracks with fewer than BuildSettings.TrackMinStations stations (3 by
 //     default) are dropped: a weak spurious source in one group starts a
 //     track but does not make one. The others are numbered 2, 3, ... by
@@ -85,6 +91,10 @@ type trackSource struct {
 func trackGate(depthA, depthB float64) float64 {
 	return math.Max(1, 1.5*math.Min(depthA, depthB))
 }
+
+// maxTrackGap is the most groups in a row a track may miss and still be
+// continued (see above).
+const maxTrackGap = 3
 
 // maxTrackSlope bounds the change of a track's offset per metre of
 // chainage used to predict its next offset.
@@ -128,6 +138,9 @@ func associate(groups [][]trackSource, minStations int) [][]trackSource {
 		var pairs []pair
 		for ti, t := range tracks {
 			last := t.members[len(t.members)-1]
+			if cands[0].pos-last.pos > maxTrackGap+1 {
+				continue // closed
+			}
 			for ci, c := range cands {
 				pred := t.predict(c.chainage)
 				if d := math.Hypot(c.offset-pred, c.depth-last.depth); d <= trackGate(c.depth, last.depth) {

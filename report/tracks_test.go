@@ -156,6 +156,35 @@ func TestAssociate(t *testing.T) {
 			}{{1, []int{2, 3}}},
 		},
 		{
+			// A track may miss maxTrackGap (3) groups in a row and go on.
+			name: "three groups missed",
+			groups: build(func(k int) []cand {
+				if k >= 3 && k <= 5 {
+					return nil
+				}
+				return []cand{{label: 1, offset: 1.5 + noise(k), depth: 0.9, current: 20}}
+			}),
+			want: []struct {
+				label  int
+				groups []int
+			}{{1, []int{0, 1, 2, 6, 7}}},
+		},
+		{
+			// After four missed it is closed: the source beyond starts a
+			// new track, too short to keep.
+			name: "four groups missed",
+			groups: build(func(k int) []cand {
+				if k >= 3 && k <= 6 {
+					return nil
+				}
+				return []cand{{label: 1, offset: 1.5 + noise(k), depth: 0.9, current: 20}}
+			}),
+			want: []struct {
+				label  int
+				groups []int
+			}{{1, []int{0, 1, 2}}},
+		},
+		{
 			// Numbered by decreasing median current: the stronger line
 			// on the left is conductor 2 although it appears later.
 			name: "numbered by current",

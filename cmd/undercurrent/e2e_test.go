@@ -904,3 +904,52 @@ func shellWords(s string) []string {
 	}
 	return words
 }
+
+// TestDemoOtherSeeds: the demo route drawn with ten other noise seeds
+// reports the earth fault, and no other step, on every one. The shallow
+// stretch's end (T16-T17) and the bend (T19) make the straight-line fits'
+// currents 1% off in ways their sigmas do not carry; before the 2% step
+// threshold (route.Settings.MinStep) five to seven of these seeds reported
+// a false "current joining" step there, and before tracks were closed
+// after maxTrackGap missed groups one linked a deep spurious source at
+// T16 with two at T30-T31 into a conductor with a step of its own.
+func TestDemoOtherSeeds(t *testing.T) {
+	if testing.Short() {
+		t.Skip("ten simulated surveys")
+	}
+	text := string(simulate.DemoText())
+	if !strings.Contains(text, "\nseed = 1402\n") {
+		t.Fatal("the demo scenario no longer sets seed = 1402")
+	}
+	for seed := 11; seed <= 20; seed++ {
+		t.Run(strconv.Itoa(seed), func(t *testing.T) {
+			dir := t.TempDir()
+			path := filepath.Join(dir, "demo.toml")
+			if err := os.WriteFile(path, []byte(strings.Replace(text, "\nseed = 1402\n", fmt.Sprintf("\nseed = %d\n", seed), 1)), 0o644); err != nil {
+				t.Fatal(err)
+			}
+			log := filepath.Join(dir, "demo.arrows")
+			mustCLI(t, "simulate", path, "-o", log)
+			out := mustCLI(t, "locate", "--json", "--freq", "50", "--window", "0.1", "--group-by", "group",
+				"--sensor-height", "0.3", "--ground-sigma", "0.02", "--min-cover", "0.6", log)
+			var doc resultDoc
+			if err := json.Unmarshal([]byte(out), &doc); err != nil {
+				t.Fatal(err)
+			}
+			fault := 0
+			for _, f := range doc.Findings {
+				if f.Kind != "current-step" {
+					continue
+				}
+				if f.From <= 112.5 && 112.5 <= f.To && f.Values != nil && f.Values[0].Value < 0 && f.Conductor <= 1 {
+					fault++
+				} else {
+					t.Errorf("a step where there is none: %s", f.Message)
+				}
+			}
+			if fault != 1 {
+				t.Errorf("%d steps at the earth fault, want 1", fault)
+			}
+		})
+	}
+}
