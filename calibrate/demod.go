@@ -83,6 +83,17 @@ type DemodSettings struct {
 	// about 0.28/cycles with sin and cos), so they cost almost no
 	// precision.
 	ConstantAmplitude bool
+	// Nuisance lists other frequencies, Hz, fitted alongside in every
+	// window and not reported: the mains (50 or 60 Hz and its odd
+	// harmonics) beside an injected tracer. A walked sensor sees a strong
+	// mains field change within each window, and a changing tone is not
+	// orthogonal to the signal's columns even over whole cycles of both:
+	// unfitted, it leaks into the signal's phasors as noise many times the
+	// reading noise. Each takes a cos and sin column, and their slope
+	// columns unless ConstantAmplitude. Each must lie below the Nyquist
+	// frequency and at least 1/Window from Freq and from each requested
+	// harmonic of it.
+	Nuisance []float64
 	// Band is the frequency error tolerated before a drift warning, Hz.
 	// Zero means 0.1/Window, where the three-parameter fit loses about
 	// 1.6% of the amplitude.
@@ -110,6 +121,8 @@ type DemodResult struct {
 	// Uniform and General count the windows demodulated with the shared
 	// precomputed basis and with a basis built from their own timestamps.
 	Uniform, General int
+	// Nuisance lists the nuisance frequencies fitted (DemodSettings), Hz.
+	Nuisance []float64
 	// Dropped counts samples that fell in no full window (run tails).
 	Dropped  int
 	Warnings []string
@@ -270,6 +283,7 @@ func DemodulateColumns(c *Columns, set *DemodSettings) (*DemodResult, error) {
 		res.Warnings = append(res.Warnings, fmt.Sprintf("frequency not given: estimated %.4f Hz from the log", f))
 	}
 	res.Freq = ds.Freq
+	res.Nuisance = append([]float64(nil), ds.Nuisance...)
 	maxH := 1
 	for _, h := range ds.Harmonics {
 		maxH = max(maxH, h)
@@ -288,6 +302,16 @@ func DemodulateColumns(c *Columns, set *DemodSettings) (*DemodResult, error) {
 	}
 	N := int(math.Round(ds.Window / dt))
 	hop := max(1, int(math.Round(ds.Step/dt)))
+	for _, fn := range ds.Nuisance {
+		if !(fn > 0) || fn >= fs/2 || math.IsInf(fn, 0) {
+			return nil, fmt.Errorf("calibrate: demodulate: nuisance frequency %g Hz is not between 0 and the Nyquist frequency %g Hz", fn, fs/2)
+		}
+		for _, h := range append([]int{1}, ds.Harmonics...) {
+			if math.Abs(fn-float64(h)*ds.Freq) < 1/ds.Window {
+				return nil, fmt.Errorf("calibrate: demodulate: nuisance frequency %g Hz is within 1/window (%.3g Hz) of %g Hz, which a %g s window cannot tell apart", fn, 1/ds.Window, float64(h)*ds.Freq, ds.Window)
+			}
+		}
+	}
 	p := 3 + 2*len(ds.Harmonics)
 	if ds.Drift {
 		p++
@@ -295,6 +319,11 @@ func DemodulateColumns(c *Columns, set *DemodSettings) (*DemodResult, error) {
 	if !ds.ConstantAmplitude {
 		p += 2
 	}
+	perNuisance := 2
+	if !ds.ConstantAmplitude {
+		perNuisance = 4
+	}
+	p += perNuisance * len(ds.Nuisance)
 	if N <= p+1 {
 		return nil, fmt.Errorf("calibrate: demodulate: a %g s window holds %d samples at %g Hz sampling, too few for %d parameters", ds.Window, N, fs, p)
 	}
@@ -302,7 +331,7 @@ func DemodulateColumns(c *Columns, set *DemodSettings) (*DemodResult, error) {
 		res.Warnings = append(res.Warnings, fmt.Sprintf("a %g s window holds only %.2f cycles of %g Hz (want at least %g): amplitudes leak from the Earth's field and drift", ds.Window, cyc, ds.Freq, ds.MinCycles))
 	}
 
-	tpl, err := newTemplate(N, dt, ds.Freq, ds.Harmonics, ds.Drift, !ds.ConstantAmplitude)
+	tpl, err := newTemplate(N, dt, ds.Freq, ds.Harmonics, ds.Drift, !ds.ConstantAmplitude, ds.Nuisance)
 	if err != nil {
 		return nil, err
 	}
@@ -354,10 +383,19 @@ type template struct {
 	harmonics []int
 	drift     bool
 	slope     bool
+	nuisance  []float64
 	freq      float64
 }
 
-func newTemplate(n int, dt, freq float64, harmonics []int, drift, slope bool) (*template, error) {
+// nuisanceCols is the number of columns the nuisance frequencies take.
+func (tp *template) nuisanceCols() int {
+	if tp.slope {
+		return 4 * len(tp.nuisance)
+	}
+	return 2 * len(tp.nuisance)
+}
+
+func newTemplate(n int, dt, freq float64, harmonics []int, drift, slope bool, nuisance []float64) (*template, error) {
 	q := 3 + 2*len(harmonics)
 	if drift {
 		q++
@@ -366,7 +404,9 @@ func newTemplate(n int, dt, freq float64, harmonics []int, drift, slope bool) (*
 	if slope {
 		p += 2
 	}
-	tp := &template{n: n, p: p, dt: dt, harmonics: harmonics, drift: drift, slope: slope, freq: freq}
+	tp := &template{n: n, dt: dt, harmonics: harmonics, drift: drift, slope: slope, nuisance: nuisance, freq: freq}
+	p += tp.nuisanceCols()
+	tp.p = p
 	tp.basis = make([][]float64, p)
 	for j := range tp.basis {
 		tp.basis[j] = make([]float64, n)
@@ -379,6 +419,10 @@ func newTemplate(n int, dt, freq float64, harmonics []int, drift, slope bool) (*
 			tp.basis[j][k] = row[j]
 		}
 	}
+	tau := make([]float64, n)
+	for k := range tau {
+		tau[k] = float64(k) * dt
+	}
 	if slope {
 		// τ̄ = (n-1) dt / 2; k dt - τ̄ is formed as (2k - (n-1)) dt/2, exact
 		// in the integers.
@@ -388,6 +432,7 @@ func newTemplate(n int, dt, freq float64, harmonics []int, drift, slope bool) (*
 			tp.basis[q+1][k] = tc * tp.basis[1][k]
 		}
 	}
+	fillNuisance(tp.basis[p-tp.nuisanceCols():], tau, nuisance, slope)
 	g, err := normalInverse(tp.basis)
 	if err != nil {
 		return nil, err
@@ -439,6 +484,7 @@ type demodulator struct {
 	// scratch, reused from window to window
 	xty   []float64
 	beta  []float64
+	ybuf  []float64   // a window's series less its first value
 	fit   *freqFit    // the four-parameter fit (EstimateFreq)
 	gen   *template   // the basis of a window that is not on the shared grid
 	times windowTimes // the times of a window off the shared grid
@@ -492,7 +538,7 @@ func (d *demodulator) window(lo, hi int) error {
 	var fitQ [3]float64 // the joint fit's Schur complement per axis (EstimateFreq)
 	if set.EstimateFreq {
 		if d.fit == nil {
-			d.fit = newFreqFit(set.Harmonics, set.Drift)
+			d.fit = newFreqFit(set.Harmonics, set.Drift, set.Nuisance, !set.ConstantAmplitude)
 		}
 		if k := d.fit.load(c.Time[lo:hi], [3][]float64{c.B[0][lo:hi], c.B[1][lo:hi], c.B[2][lo:hi]}); k >= 0 {
 			return c.badValue(k, lo, hi)
@@ -558,16 +604,37 @@ func (d *demodulator) window(lo, hi int) error {
 				yy += v * v
 			}
 			xty[0], xty[1], xty[2] = sc, ss, s1
-		} else {
-			for j := range xty {
-				xty[j] = 0
-			}
+		} else if p == 5 && tpl.slope {
+			// The default (cos, sin, 1 and the two slope columns), in one
+			// pass.
+			n := len(y)
+			cb, sb := tpl.basis[0][:n], tpl.basis[1][:n]
+			tcb, tsb := tpl.basis[3][:n], tpl.basis[4][:n]
+			var sc, ss, s1, stc, sts float64
 			for i, v := range y {
 				v -= ref
+				sc += v * cb[i]
+				ss += v * sb[i]
+				s1 += v
+				stc += v * tcb[i]
+				sts += v * tsb[i]
 				yy += v * v
-				for j := 0; j < p; j++ {
-					xty[j] += v * tpl.basis[j][i]
-				}
+			}
+			xty[0], xty[1], xty[2], xty[3], xty[4] = sc, ss, s1, stc, sts
+		} else {
+			// The series less its first value once, then one product per
+			// column (contiguous, four partial sums).
+			if cap(d.ybuf) < len(y) {
+				d.ybuf = make([]float64, len(y))
+			}
+			yb := d.ybuf[:len(y)]
+			for i, v := range y {
+				v -= ref
+				yb[i] = v
+				yy += v * v
+			}
+			for j := 0; j < p; j++ {
+				xty[j] = dot(yb, tpl.basis[j])
 			}
 		}
 		if math.IsNaN(yy) || math.IsInf(yy, 0) {
@@ -629,7 +696,7 @@ func (d *demodulator) generalTemplate(g *windowTimes, freq float64) (*template, 
 	n, p := len(g.tau), d.tpl.p
 	tp := d.gen
 	if tp == nil {
-		tp = &template{p: p, basis: make([][]float64, p), ginv: make([]float64, p*p), harmonics: d.set.Harmonics, drift: d.set.Drift, slope: d.tpl.slope}
+		tp = &template{p: p, basis: make([][]float64, p), ginv: make([]float64, p*p), harmonics: d.set.Harmonics, drift: d.set.Drift, slope: d.tpl.slope, nuisance: d.tpl.nuisance}
 		d.gen = tp
 		d.gram = make([]float64, p*p)
 		d.chol = make([]float64, p*p)
@@ -645,8 +712,10 @@ func (d *demodulator) generalTemplate(g *windowTimes, freq float64) (*template, 
 	tp.n, tp.freq = n, freq
 	fillBasis(tp.basis, g, 2*math.Pi*freq, d.set.Harmonics, d.set.Drift)
 	if tp.slope {
-		fillSlope(tp.basis[p-2], tp.basis[p-1], tp.basis[0], tp.basis[1], g.tau)
+		q := p - tp.nuisanceCols()
+		fillSlope(tp.basis[q-2], tp.basis[q-1], tp.basis[0], tp.basis[1], g.tau)
 	}
+	fillNuisance(tp.basis[p-tp.nuisanceCols():], g.tau, tp.nuisance, tp.slope)
 	xtx := d.gram
 	for i := 0; i < p; i++ {
 		for j := i; j < p; j++ {
@@ -686,6 +755,82 @@ func fillSlope(sc, ss, cs, sn, tau []float64) {
 		tc := v - m
 		sc[k] = tc * cs[k]
 		ss[k] = tc * sn[k]
+	}
+}
+
+// MainsNuisance returns the mains frequencies to fit alongside a signal at
+// freq Hz in windows of window seconds of a log sampled at fs Hz
+// (DemodSettings.Nuisance): for each mains frequency in mains (50, 60),
+// its fundamental, third and fifth harmonics and the odd harmonics next
+// above and below freq (a mains field is rich in odd harmonics, and
+// those nearest the signal leak into it most), in increasing order,
+// leaving out those at or above 0.45 fs, those within 1/window of freq
+// or of the harmonics of it to be fitted (which the window cannot tell
+// apart: DemodSettings.Harmonics), and repeats within 1/window of one
+// already taken. Nil when freq is itself a mains frequency.
+func MainsNuisance(freq, window, fs float64, mains []float64, harmonics []int) []float64 {
+	var cand []float64
+	for _, m := range mains {
+		if !(m > 0) || math.Abs(freq-m) < 1e-9*m {
+			return nil
+		}
+		for _, h := range []float64{1, 3, 5} {
+			cand = append(cand, h*m)
+		}
+		// The odd harmonics on either side of freq.
+		k := math.Floor(freq / m)
+		below := k
+		if math.Mod(below, 2) == 0 {
+			below--
+		}
+		for _, h := range []float64{below, below + 2} {
+			if h >= 7 {
+				cand = append(cand, h*m)
+			}
+		}
+	}
+	sort.Float64s(cand)
+	sep := 1 / window
+	var out []float64
+	for _, f := range cand {
+		ok := f < 0.45*fs && math.Abs(f-freq) >= sep
+		for _, h := range harmonics {
+			ok = ok && math.Abs(f-float64(h)*freq) >= sep
+		}
+		if ok && len(out) > 0 && f-out[len(out)-1] < sep {
+			ok = false
+		}
+		if ok {
+			out = append(out, f)
+		}
+	}
+	return out
+}
+
+// fillNuisance fills the columns of the nuisance frequencies freqs (Hz) at
+// the window's local times tau: cos and sin of each, then, with slope,
+// (τ-τ̄) cos and (τ-τ̄) sin of each.
+func fillNuisance(cols [][]float64, tau, freqs []float64, slope bool) {
+	if len(freqs) == 0 {
+		return
+	}
+	var m float64
+	for _, v := range tau {
+		m += v
+	}
+	m /= float64(len(tau))
+	j := 0
+	for _, fn := range freqs {
+		w := 2 * math.Pi * fn
+		cs, sn := cols[j], cols[j+1]
+		for k, v := range tau {
+			sn[k], cs[k] = math.Sincos(w * v)
+		}
+		j += 2
+		if slope {
+			fillSlope(cols[j], cols[j+1], cs, sn, tau)
+			j += 2
+		}
 	}
 }
 
@@ -775,7 +920,7 @@ func estimateFreq(c *Columns, runs []run, dt, minFreq float64) (float64, error) 
 	f0 := (float64(peak) + delta) * df
 	// The joint four-parameter fit of the three axes from f0, as in the
 	// windows of EstimateFreq.
-	ff := newFreqFit(nil, false)
+	ff := newFreqFit(nil, false, nil, false)
 	a, b := r.lo, r.lo+n
 	if ff.load(c.Time[a:b], [3][]float64{c.B[0][a:b], c.B[1][a:b], c.B[2][a:b]}) >= 0 {
 		// Non-finite readings: the window holding them reports them.

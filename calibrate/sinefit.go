@@ -529,29 +529,40 @@ const rssFloor = 1e-13
 type freqFit struct {
 	harmonics []int
 	drift     bool
-	p         int          // linear parameters: 3, 2 per harmonic, 1 for drift
-	n         int          // samples in the buffers
-	cols      [][]float64  // p basis columns, then τ sin ωτ and τ cos ωτ
-	ys        [3][]float64 // the window's series less their first value
-	yt        [3][]float64 // ys times τ (three-parameter case)
-	y1        [3]float64   // Σ ys per axis
-	times     windowTimes
-	t1, t2    float64      // Σ τ and Σ τ²
-	gram      []float64    // (p+2)×(p+2) normal matrix of cols, row-major
-	xty       [3][]float64 // colsᵀ y per axis
-	yy        [3]float64   // yᵀy per axis
-	l         []float64    // p×p Cholesky factor of the basis block
-	zs, zc    []float64    // the basis block's inverse times the columns τ sin ωτ and τ cos ωτ
-	b0        []float64    // scratch, p
+	// nuisance lists frequencies fitted alongside (DemodSettings.Nuisance),
+	// with their slope columns when nuisanceSlope; their columns, which do
+	// not depend on ω, follow the basis columns in cols and are filled by
+	// load.
+	nuisance      []float64
+	nuisanceSlope bool
+	p             int          // linear parameters: 3, 2 per harmonic, 1 for drift, then the nuisance columns
+	n             int          // samples in the buffers
+	cols          [][]float64  // p basis columns, then τ sin ωτ and τ cos ωτ
+	ys            [3][]float64 // the window's series less their first value
+	yt            [3][]float64 // ys times τ (three-parameter case)
+	y1            [3]float64   // Σ ys per axis
+	times         windowTimes
+	t1, t2        float64      // Σ τ and Σ τ²
+	gram          []float64    // (p+2)×(p+2) normal matrix of cols, row-major
+	xty           [3][]float64 // colsᵀ y per axis
+	yy            [3]float64   // yᵀy per axis
+	l             []float64    // p×p Cholesky factor of the basis block
+	zs, zc        []float64    // the basis block's inverse times the columns τ sin ωτ and τ cos ωτ
+	b0            []float64    // scratch, p
 }
 
-func newFreqFit(harmonics []int, drift bool) *freqFit {
+func newFreqFit(harmonics []int, drift bool, nuisance []float64, nuisanceSlope bool) *freqFit {
 	p := 3 + 2*len(harmonics)
 	if drift {
 		p++
 	}
+	if nuisanceSlope {
+		p += 4 * len(nuisance)
+	} else {
+		p += 2 * len(nuisance)
+	}
 	m := p + 2
-	f := &freqFit{harmonics: harmonics, drift: drift, p: p,
+	f := &freqFit{harmonics: harmonics, drift: drift, nuisance: nuisance, nuisanceSlope: nuisanceSlope, p: p,
 		cols: make([][]float64, m),
 		gram: make([]float64, m*m),
 		l:    make([]float64, p*p),
@@ -585,6 +596,13 @@ func (f *freqFit) load(t []float64, y [3][]float64) int {
 	f.n = n
 	f.times.set(t)
 	tau := f.times.tau
+	if len(f.nuisance) > 0 {
+		cols := f.cols[f.nuisanceStart():f.p]
+		for j := range cols {
+			cols[j] = cols[j][:n]
+		}
+		fillNuisance(cols, tau, f.nuisance, f.nuisanceSlope)
+	}
 	f.t1, f.t2 = 0, 0
 	for _, v := range tau {
 		f.t1 += v
@@ -607,7 +625,30 @@ func (f *freqFit) load(t []float64, y [3][]float64) int {
 			bad = k
 		}
 	}
+	// The nuisance columns do not depend on ω: their block of the normal
+	// matrix and their products with the series are formed once here.
+	if q := f.nuisanceStart(); q < f.p {
+		m := f.p + 2
+		for i := q; i < f.p; i++ {
+			for j := i; j < f.p; j++ {
+				v := dot(f.cols[i], f.cols[j])
+				f.gram[i*m+j], f.gram[j*m+i] = v, v
+			}
+			for k := range f.ys {
+				f.xty[k][i] = dot(f.cols[i], f.ys[k][:n])
+			}
+		}
+	}
 	return bad
+}
+
+// nuisanceStart is the index of the first nuisance column (p when none).
+func (f *freqFit) nuisanceStart() int {
+	nc := 2 * len(f.nuisance)
+	if f.nuisanceSlope {
+		nc *= 2
+	}
+	return f.p - nc
 }
 
 // pass fills the columns at angular frequency w for the loaded times and
@@ -629,8 +670,14 @@ func (f *freqFit) pass(w float64, axes ...int) error {
 	for k, tau := range f.times.tau {
 		ts[k], tc[k] = tau*sn[k], tau*cs[k]
 	}
+	// The entries between nuisance columns [q, p) were formed by load.
+	q := f.nuisanceStart()
+	fixed := func(j int) bool { return j >= q && j < p }
 	for i := 0; i < m; i++ {
 		for j := i; j < m; j++ {
+			if fixed(i) && fixed(j) {
+				continue
+			}
 			var s float64
 			if i == 2 && j == 2 {
 				s = float64(n)
@@ -643,9 +690,11 @@ func (f *freqFit) pass(w float64, axes ...int) error {
 	for _, k := range axes {
 		ys := f.ys[k][:n]
 		for j := 0; j < m; j++ {
-			if j == 2 {
+			switch {
+			case fixed(j):
+			case j == 2:
 				f.xty[k][j] = f.y1[k]
-			} else {
+			default:
 				f.xty[k][j] = dot(cols[j], ys)
 			}
 		}

@@ -159,6 +159,10 @@ type Signal struct {
 	// length for AC; zero for DC.
 	FrequencyHz float64 `json:"frequency_hz,omitempty"`
 	WindowS     float64 `json:"window_s,omitempty"`
+	// NuisanceHz lists the other frequencies fitted alongside in every
+	// window and not reported (the mains and their odd harmonics beside
+	// an injected tracer); empty when none were.
+	NuisanceHz []float64 `json:"nuisance_hz,omitempty"`
 }
 
 // MinCover is a minimum depth of cover and where it comes from.

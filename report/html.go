@@ -6,6 +6,7 @@ import (
 	"io"
 	"math"
 	"sort"
+	"strconv"
 	"strings"
 
 	"gonum.org/v1/plot/vg"
@@ -122,6 +123,13 @@ func newView(d *Document) (*view, error) {
 	v.SignalText = "DC field"
 	if d.Signal.Mode == SignalAC {
 		v.SignalText = fmt.Sprintf("AC at %g Hz, %g s windows; currents are RMS", d.Signal.FrequencyHz, d.Signal.WindowS)
+		if len(d.Signal.NuisanceHz) > 0 {
+			hz := make([]string, len(d.Signal.NuisanceHz))
+			for i, f := range d.Signal.NuisanceHz {
+				hz[i] = strconv.FormatFloat(f, 'g', -1, 64)
+			}
+			v.SignalText += fmt.Sprintf("; the mains fitted alongside at %s Hz", strings.Join(hz, ", "))
+		}
 	}
 	v.Settings = settingRows(d.Settings)
 	v.summarise()
@@ -161,6 +169,7 @@ var settingWords = map[string]string{
 	"robust":              "Outlying readings down-weighted",
 	"despike":             "Spikes removed",
 	"step-k":              "Current steps reported beyond, in standard deviations",
+	"mains":               "Mains fitted beside the signal, Hz",
 	"min-step":            "Smallest change in current taken as a step, per cent",
 	"column":              "Columns mapped",
 	"columns":             "Columns mapped",

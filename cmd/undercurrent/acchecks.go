@@ -231,6 +231,42 @@ func freqDecimals(sigma float64) int {
 	return min(6, max(2, d))
 }
 
+// demodPlan holds what every demodulation of a log shares: the mains
+// frequencies fitted as nuisance beside a signal that is not the mains
+// (--mains), and the log's sample rate, Hz.
+type demodPlan struct {
+	mains []float64
+	fs    float64
+}
+
+// settings returns the demodulation settings at freq in windows of win
+// seconds, with harmonics h of freq fitted too: the mains and their odd
+// harmonics are fitted alongside (calibrate.MainsNuisance) unless freq is
+// a mains frequency.
+func (pl demodPlan) settings(freq, win float64, h []int) *calibrate.DemodSettings {
+	set := &calibrate.DemodSettings{Freq: freq, Window: win, Harmonics: h}
+	if pl.fs > 0 && len(pl.mains) > 0 {
+		set.Nuisance = calibrate.MainsNuisance(freq, win, pl.fs, pl.mains, h)
+	}
+	return set
+}
+
+// logRate is the sample rate of s, Hz: the reciprocal of the median
+// positive time step among the first 4096; 0 when there is none.
+func logRate(s *ingest.Samples) float64 {
+	var d []float64
+	for i := 1; i < len(s.Time) && len(d) < 4096; i++ {
+		if st := s.Time[i] - s.Time[i-1]; st > 0 {
+			d = append(d, st)
+		}
+	}
+	if len(d) == 0 {
+		return 0
+	}
+	sort.Float64s(d)
+	return 1 / d[len(d)/2]
+}
+
 // demodulateAC demodulates s at o.freq with o.window (or defaultWindow),
 // checks the field's frequency against o.freq and, when it is off (see
 // above), demodulates at the estimate. It returns the result, the window
@@ -240,7 +276,8 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 	if win == 0 {
 		win = defaultWindow(o.freq)
 	}
-	res, err := calibrate.Demodulate(s, &calibrate.DemodSettings{Freq: o.freq, Window: win})
+	pl := demodPlan{mains: o.mains, fs: logRate(s)}
+	res, err := calibrate.Demodulate(s, pl.settings(o.freq, win, nil))
 	if err != nil {
 		return nil, 0, nil, err
 	}
@@ -254,7 +291,9 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 	// are left out.
 	var fit *calibrate.DemodResult
 	for _, h := range [][]int{{3, 5}, {3}, nil} {
-		fit, err = calibrate.Demodulate(s, &calibrate.DemodSettings{Freq: o.freq, Window: win, EstimateFreq: true, Harmonics: h})
+		set := pl.settings(o.freq, win, h)
+		set.EstimateFreq = true
+		fit, err = calibrate.Demodulate(s, set)
 		if err == nil {
 			break
 		}
@@ -272,7 +311,7 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 	span := longestGroupSpan(res.Windows, win)
 	turn := 360 * math.Abs(off) * span
 	if math.Abs(off) <= freqCheckSigmas*est.sigma || turn <= freqCheckDegrees {
-		res, warn, err := followWander(s, res, fit.Windows, o.freq, win)
+		res, warn, err := followWander(s, res, fit.Windows, o.freq, win, pl)
 		if err != nil {
 			return nil, 0, nil, err
 		}
@@ -298,13 +337,13 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 	if c := win * o.freq; math.Abs(c-math.Round(c)) < 1e-6*c {
 		win2 = math.Round(c) / est.freq
 	}
-	again, err := calibrate.Demodulate(s, &calibrate.DemodSettings{Freq: est.freq, Window: win2})
+	again, err := calibrate.Demodulate(s, pl.settings(est.freq, win2, nil))
 	if err != nil {
 		return nil, 0, nil, err
 	}
 	warn := fmt.Sprintf("AC frequency estimated at %.*f ± %.*f Hz from %d windows, not the %g Hz given (at %g Hz the phase would turn %.0f° across the longest group, %.1f s, and the currents would read low); demodulated at %.*f Hz in %.4g s windows",
 		dec, est.freq, dec, est.sigma, est.windows, o.freq, o.freq, turn, span, dec, est.freq, win2)
-	again, wander, err := followWander(s, again, fit.Windows, est.freq, win2)
+	again, wander, err := followWander(s, again, fit.Windows, est.freq, win2, pl)
 	if err != nil {
 		return nil, 0, nil, err
 	}
@@ -316,7 +355,7 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 // number of its cycles, and puts its windows in res in place of those
 // demodulated at freq. It returns the result and a warning naming the
 // groups, or "" when none wandered.
-func followWander(s *ingest.Samples, res *calibrate.DemodResult, fitted []calibrate.Window, freq, window float64) (*calibrate.DemodResult, string, error) {
+func followWander(s *ingest.Samples, res *calibrate.DemodResult, fitted []calibrate.Window, freq, window float64, pl demodPlan) (*calibrate.DemodResult, string, error) {
 	bad := groupWander(fitted, freq, window)
 	if len(bad) == 0 {
 		return res, "", nil
@@ -331,7 +370,7 @@ func followWander(s *ingest.Samples, res *calibrate.DemodResult, fitted []calibr
 	var worst float64
 	for _, k := range keys {
 		f := bad[k]
-		d, err := calibrate.Demodulate(s, &calibrate.DemodSettings{Freq: f, Window: cycles / f})
+		d, err := calibrate.Demodulate(s, pl.settings(f, cycles/f, nil))
 		if err != nil {
 			return nil, "", err
 		}

@@ -47,7 +47,8 @@ type resultDoc struct {
 		GroundSigma float64 `json:"ground_sigma_m"`
 	} `json:"depth_reference"`
 	Signal struct {
-		Mode string `json:"mode"`
+		Mode       string    `json:"mode"`
+		NuisanceHz []float64 `json:"nuisance_hz"`
 	} `json:"signal"`
 	Frame struct {
 		Origin *struct {

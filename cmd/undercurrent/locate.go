@@ -32,6 +32,8 @@ type locateOptions struct {
 	base         string
 	freq         float64
 	window       float64
+	mainsText    string
+	mains        []float64 // mains frequencies fitted as nuisance beside another --freq
 	count        string
 	groupBy      string
 	json         bool
@@ -74,6 +76,7 @@ func (o *locateOptions) setFlags(fs *pflag.FlagSet) {
 	fs.StringVar(&o.calibration, "calibration", "", "apply the sensor calibration in `CAL.json` (from undercurrent calibrate)")
 	fs.StringVar(&o.base, "base", "", "subtract the diurnal variation recorded by the base station log `BASE` (any log format, IAGA-2002 too)")
 	fs.Float64Var(&o.freq, "freq", 0, "demodulate the AC field at `HZ` (50, 60, 16.7, 512...) and fit RMS currents with phase; the field's own frequency is then estimated from the log, and if it is off (a grid at 50.1 Hz) the log is demodulated at the estimate, with a warning saying so (too far off, it refuses and names the frequency found); without --freq the DC field is fitted (no frequency is estimated and AC is not looked for)")
+	fs.StringVar(&o.mainsText, "mains", "50,60", "with --freq at another frequency than the mains (an injected tracer, 16.7 Hz), fit the mains `HZ` (50, 60, both as 50,60, or none) and their odd harmonics alongside in every window, so that a strong mains field changing as the sensor walks does not leak into the signal as noise")
 	fs.Float64Var(&o.window, "window", 0, "AC demodulation window, `S` seconds (default: ten cycles at 50 or 60 Hz; at any other frequency ten cycles or 0.1 s, whichever is longer, rounded up to a multiple of 0.1 s, so that the window holds whole cycles of the 50 or 60 Hz mains and they do not leak in)")
 	o.coil.add(fs)
 	fs.StringVar(&o.count, "count", "auto", "number of line conductors per fit, `N` (1-4) or auto")
@@ -111,6 +114,11 @@ func (o *locateOptions) check(fs *pflag.FlagSet) error {
 	if o.freq < 0 || math.IsNaN(o.freq) || math.IsInf(o.freq, 0) {
 		return usageErrorf("--freq %g: want a positive frequency in Hz", o.freq)
 	}
+	mains, err := parseMains(o.mainsText)
+	if err != nil {
+		return err
+	}
+	o.mains = mains
 	if o.window != 0 && o.freq == 0 {
 		return usageErrorf("--window needs --freq: windows are for AC demodulation")
 	}
@@ -569,7 +577,7 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 		}
 	}
 	if sv.doc.Signal.WindowS == 0 {
-		sv.doc.Signal = report.Signal{Mode: report.SignalAC, FrequencyHz: res.Freq, WindowS: win}
+		sv.doc.Signal = report.Signal{Mode: report.SignalAC, FrequencyHz: res.Freq, WindowS: win, NuisanceHz: res.Nuisance}
 	}
 	for _, w := range res.Windows {
 		g := get(w.Group)
@@ -1029,4 +1037,24 @@ func minStepFraction(pct float64) float64 {
 		return -1
 	}
 	return pct / 100
+}
+
+// parseMains reads --mains: a comma-separated list of mains frequencies
+// (Hz), or none; empty (options made in code) is the default, 50,60.
+func parseMains(text string) ([]float64, error) {
+	switch strings.TrimSpace(text) {
+	case "none":
+		return nil, nil
+	case "":
+		return []float64{50, 60}, nil
+	}
+	var out []float64
+	for _, f := range strings.Split(text, ",") {
+		v, err := strconv.ParseFloat(strings.TrimSpace(f), 64)
+		if err != nil || !(v > 0) || math.IsInf(v, 0) {
+			return nil, usageErrorf("--mains %q: want mains frequencies in Hz (50, 60 or 50,60) or none", text)
+		}
+		out = append(out, v)
+	}
+	return out, nil
 }
