@@ -253,6 +253,31 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 	return &d, nil
 }
 
+// currentK is the number of sigmas a current must exceed to be taken as
+// found: 3 for a DC current (a normal value: |Z| > 3 with probability
+// 0.0027), and for an AC RMS current, the modulus of a phasor of two
+// normal parts, the k with the same tail under the Rayleigh distribution,
+// exp(-k²/2) = 0.0027, k = 3.44 (as inverse's guard on extra lines).
+func currentK(ac bool) float64 {
+	if ac {
+		return math.Sqrt(-2 * math.Log(math.Erfc(3/math.Sqrt2)))
+	}
+	return 3
+}
+
+// noCurrent reports whether line source s carries no current the data
+// resolve: not identifiable, or within currentK sigma of zero. A fit to
+// readings with no conductor under them (a coil log with no AC field, a
+// traverse beyond the end of the cable) still places a line somewhere;
+// its depth and position are then noise, and a cover check on them would
+// warn of a conductor that is not there.
+func noCurrent(s *inverse.SourceEstimate, ac bool) bool {
+	if s.Kind == KindDipole {
+		return false
+	}
+	return !s.Identifiable.Current || !(math.Abs(s.Current) > currentK(ac)*s.CurrentSigma)
+}
+
 // buildGroup converts one fit into the document's group and the route's
 // station (the strongest source is the one the route follows).
 func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int) (Group, route.Station) {
@@ -280,9 +305,17 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int) (Group, route
 	for _, s := range res.Sources {
 		g.Sources = append(g.Sources, buildSource(s, pts, ac))
 	}
+	weak := g.OK && noCurrent(&res.Sources[0], ac)
+	if weak {
+		g.OK = false
+	}
 	switch {
 	case len(res.Sources) == 0:
 		g.Problem = "no conductor was fitted"
+	case weak:
+		s := res.Sources[0]
+		g.Problem = fmt.Sprintf("no current found: the strongest line's current, %s A, is within %.3g sigma of zero (no conductor under this group, or too weak a signal), so its position and depth mean nothing",
+			PlusMinus(s.Current, s.CurrentSigma), currentK(ac))
 	case !g.OK:
 		g.Problem = "the fit did not converge (" + g.Status + ")"
 	default:
