@@ -250,6 +250,7 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 		}
 	}
 	d.addTracks(tracks)
+	d.addLoneCover(fits, r, rs, tracks)
 	return &d, nil
 }
 

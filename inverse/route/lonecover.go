@@ -1,0 +1,57 @@
+package route
+
+import (
+	"fmt"
+	"math"
+)
+
+// LoneCover checks the cover of l, a further line source of the fit at
+// usable station p that is followed along no track of its own (a service
+// crossing the route seen at one traverse, or a conductor seen at too few
+// to follow). Tracked conductors get the cover check of their own route,
+// and weak, steep sources their own finding (KindWeakSource); a lone line
+// would otherwise get none, and a crossing cable 0.35 m down would go
+// unmentioned beside a route whose cover is fine. It returns a
+// KindShallowCover finding, a warning when the cover is less than
+// Settings.MinCover by CoverK sigma and a caution when it may be, and false
+// when the minimum is not checked, l is weak and steep, or its cover is
+// clear. single is true when the route has one station.
+func LoneCover(p *Placed, l Line, set *Settings, single bool) (Finding, bool) {
+	if set == nil || set.MinCover <= 0 || !p.usable() || !l.finite() {
+		return Finding{}, false
+	}
+	if main := math.Abs(p.Current); main > 0 && math.Abs(l.Current)/main < furtherWeak && l.dip() > furtherSteep {
+		return Finding{}, false // reported by weakSources
+	}
+	k := set.coverK()
+	c, sc := set.cover(l.Depth, l.DepthSigma)
+	if c-k*sc >= set.MinCover {
+		return Finding{}, false
+	}
+	sev, verdict := SeverityCaution, "may be less than"
+	if c+k*sc < set.MinCover {
+		sev, verdict = SeverityWarning, "is less than"
+	}
+	code := "no code named"
+	if set.CoverCode != "" {
+		code = set.CoverCode
+	}
+	az := math.Mod(math.Atan2(l.Dir[0], l.Dir[1])*180/math.Pi+360, 180)
+	msg := fmt.Sprintf("a further line source in the fit at %s, %s A running at azimuth %.0f degrees, is not followed along the route (too few groups show it: a crossing service, or a conductor the other fits do not resolve); its cover, %s m, %s the %.2f m minimum (%s): confirm before digging here",
+		at(p, single), pm(math.Abs(l.Current), l.CurrentSigma), az, pm(c, sc), verdict, math.Abs(set.MinCover), code)
+	return Finding{
+		Kind:     KindShallowCover,
+		Severity: sev,
+		From:     p.Chainage,
+		To:       p.Chainage,
+		Position: l.Point,
+		Keys:     []string{p.Key},
+		Message:  msg,
+		Values: []Value{
+			{Name: "cover", Value: c, Sigma: sc, Unit: "m"},
+			{Name: "minimum cover", Value: set.MinCover, Unit: "m"},
+			{Name: "current", Value: math.Abs(l.Current), Sigma: l.CurrentSigma, Unit: "A"},
+			{Name: "azimuth", Value: az, Unit: "deg"},
+		},
+	}, true
+}

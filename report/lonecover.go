@@ -1,0 +1,42 @@
+package report
+
+import (
+	"undercurrent/inverse/route"
+)
+
+// addLoneCover checks the cover of every further line source of the
+// usable groups of r that no track follows (route.LoneCover: a service
+// crossing the route, seen at one traverse) and adds the findings, sorted
+// with SortFindings. tracks are the kept tracks; rs the route settings.
+func (d *Document) addLoneCover(fits []Fit, r *route.Route, rs *route.Settings, tracks []builtTrack) {
+	if rs == nil || rs.MinCover <= 0 {
+		return
+	}
+	type key struct{ fit, source int }
+	tracked := map[key]bool{}
+	for _, t := range tracks {
+		for _, m := range t.members {
+			tracked[key{m.fit, m.source}] = true
+		}
+	}
+	added := false
+	for k := range r.Stations {
+		p := &r.Stations[k]
+		if p.Dipole || p.Index < 0 || p.Index >= len(fits) || fits[p.Index].Result == nil {
+			continue
+		}
+		for j, s := range fits[p.Index].Result.Sources {
+			if j == 0 || s.Kind == KindDipole || !sound(&s) || tracked[key{p.Index, j}] {
+				continue
+			}
+			l := route.Line{Point: s.Point, Dir: s.Dir, Current: s.Current, CurrentSigma: s.CurrentSigma, Depth: s.Depth, DepthSigma: s.DepthSigma}
+			if f, ok := route.LoneCover(p, l, rs, len(r.Stations) == 1); ok {
+				d.Findings = append(d.Findings, findingOf(f))
+				added = true
+			}
+		}
+	}
+	if added {
+		SortFindings(d.Findings)
+	}
+}
