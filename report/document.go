@@ -271,7 +271,12 @@ type Source struct {
 	// sigma.
 	Current      float64 `json:"current_a"`
 	CurrentSigma float64 `json:"current_sigma_a"`
-	// Phase is the AC phase, degrees, and its sigma; nil for DC.
+	// Phase is the AC phase, degrees, and its sigma; nil for DC. It is
+	// referenced to a cosine of the demodulation frequency peaking at time
+	// 0 of the log's time scale (calibrate.Window), so differences between
+	// the conductors of one group are meaningful; between groups only
+	// while the frequency is exact (an error δf turns it by 360 δf t
+	// degrees, which the sigma does not count).
 	Phase      *float64 `json:"phase_deg,omitempty"`
 	PhaseSigma *float64 `json:"phase_sigma_deg,omitempty"`
 	// Depth is the depth of Point below the depth reference, m.
