@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"strings"
 )
 
 // GeoJSON frame markers, in the top-level "coordinate_frame" member.
@@ -44,8 +45,9 @@ const (
 //     and the magnitude of its moment, moment_a_m2, with its sigma
 //     moment_sigma_a_m2, as its dipole-anomaly finding gives them;
 //   - "finding": one Point per finding at its position, with kind,
-//     severity, chainage range and message, and "conductor" when it is
-//     about a further conductor.
+//     severity, chainage range and message, "conductor" when it is about
+//     a further conductor, and each of its values as a property named by
+//     valueKey ("step_a" and "step_sigma_a", "cover_m", ...).
 //
 // Sigmas are written with six significant digits, so that none is rounded
 // to zero, and each value with two digits past its sigma's leading one.
@@ -144,6 +146,18 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 		if f.Conductor > 0 {
 			props["conductor"] = f.Conductor
 		}
+		for _, v := range f.Values {
+			k := valueKey(v)
+			if _, taken := props[k]; taken {
+				continue
+			}
+			if v.Sigma > 0 {
+				props[k] = roundSig(v.Value, v.Sigma, 3)
+				props[valueKey(Value{Name: v.Name + " sigma", Unit: v.Unit})] = sigNum(v.Sigma)
+			} else {
+				props[k] = json.Number(sig(v.Value))
+			}
+		}
 		fc.Features = append(fc.Features, feature{Type: "Feature", Geometry: d.point(f.Position), Properties: props})
 	}
 	// One feature per line: compact, and readable in a diff.
@@ -222,6 +236,36 @@ func (d *Document) line(pts [][3]float64) geometry {
 
 func along(p, dir [3]float64, t float64) [3]float64 {
 	return [3]float64{p[0] + t*dir[0], p[1] + t*dir[1], p[2] + t*dir[2]}
+}
+
+// valueKey is the property name of a finding's value: its name in
+// lower case with every run of other characters one underscore, then its
+// unit the same way ("step" in A: "step_a"; "location (chainage)" in m:
+// "location_chainage_m"; "reduced chi-square": "reduced_chi_square"; "%":
+// "pct"), so that a GIS can label and filter findings by their numbers.
+func valueKey(v Value) string {
+	clean := func(s string) string {
+		s = strings.ReplaceAll(strings.ToLower(s), "%", "pct")
+		var b strings.Builder
+		under := false
+		for _, r := range s {
+			if r >= 'a' && r <= 'z' || r >= '0' && r <= '9' {
+				if under && b.Len() > 0 {
+					b.WriteByte('_')
+				}
+				b.WriteRune(r)
+				under = false
+			} else {
+				under = true
+			}
+		}
+		return b.String()
+	}
+	k := clean(v.Name)
+	if u := clean(strings.ReplaceAll(v.Unit, "/", " per ")); u != "" {
+		k += "_" + u
+	}
+	return k
 }
 
 // round returns v rounded to prec decimals as a JSON number.

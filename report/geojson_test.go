@@ -204,3 +204,35 @@ func TestGeoJSONObjectMomentFromVector(t *testing.T) {
 		}
 	}
 }
+
+// TestGeoJSONFindingValues: a finding's values are properties a GIS can
+// label and filter by, named from the value's name and unit.
+func TestGeoJSONFindingValues(t *testing.T) {
+	for _, tc := range []struct {
+		v    Value
+		want string
+	}{
+		{Value{Name: "step", Unit: "A"}, "step_a"},
+		{Value{Name: "step sigma", Unit: "A"}, "step_sigma_a"},
+		{Value{Name: "location (chainage)", Unit: "m"}, "location_chainage_m"},
+		{Value{Name: "reduced chi-square"}, "reduced_chi_square"},
+		{Value{Name: "share of the conductor's current", Unit: "%"}, "share_of_the_conductor_s_current_pct"},
+		{Value{Name: "trend", Unit: "A/m"}, "trend_a_per_m"},
+	} {
+		if got := valueKey(tc.v); got != tc.want {
+			t.Errorf("valueKey(%q, %q) = %q, want %q", tc.v.Name, tc.v.Unit, got, tc.want)
+		}
+	}
+	d := fenwickLane(false)
+	d.Findings = []Finding{{Kind: "current-step", Severity: "warning", Message: "m",
+		Values: []Value{{Name: "step", Value: -9.2, Sigma: 0.34, Unit: "A"}, {Name: "minimum cover", Value: 0.6, Unit: "m"}}}}
+	var buf bytes.Buffer
+	if err := WriteGeoJSON(&buf, d); err != nil {
+		t.Fatal(err)
+	}
+	for _, want := range []string{`"step_a":-9.20`, `"step_sigma_a":0.34`, `"minimum_cover_m":0.6`} {
+		if !strings.Contains(buf.String(), want) {
+			t.Errorf("GeoJSON lacks %s:\n%s", want, buf.String())
+		}
+	}
+}
