@@ -8,6 +8,7 @@ import (
 	"math"
 	"strings"
 	"sync"
+	"unicode/utf8"
 
 	"github.com/apache/arrow-go/v18/arrow"
 	"github.com/apache/arrow-go/v18/arrow/array"
@@ -83,6 +84,8 @@ type csvResult struct {
 	firstLine int
 	lastTime  float64
 	lines     []int // line of each row, for TimeOrderedPerGroup
+	naiveLine int   // line of the first timestamp without a UTC offset, 0 if none
+	naiveText string
 }
 
 func (r *csvReader) plan() *plan                    { return r.pl }
@@ -94,7 +97,14 @@ func (r *csvReader) Err() error                     { return r.err }
 // name is used in messages; closer (may be nil) is closed by Release.
 func newCSVReader(name string, rd io.Reader, cfg *config) (*csvReader, error) {
 	closer, _ := rd.(io.Closer)
-	r := &csvReader{name: name, closer: closer, cfg: cfg, br: bufio.NewReaderSize(rd, 64<<10), last: math.NaN()}
+	br := bufio.NewReaderSize(rd, 64<<10)
+	if head, _ := br.Peek(4096); bytes.IndexByte(head, '\r') >= 0 && bytes.IndexByte(head, '\n') < 0 {
+		// Lines end in a bare CR, as classic Mac OS text and the
+		// "Macintosh" CSV of some spreadsheets do: read each CR as a
+		// line end.
+		br = bufio.NewReaderSize(crLines{br}, 64<<10)
+	}
+	r := &csvReader{name: name, closer: closer, cfg: cfg, br: br, last: math.NaN()}
 	meta := map[string]string{}
 	lineNo := 0
 	var raw []byte   // the physical line that starts the header record
@@ -117,9 +127,22 @@ func newCSVReader(name string, rd io.Reader, cfg *config) (*csvReader, error) {
 		}
 		lineNo++
 		if lineNo == 1 {
+			if bytes.HasPrefix(raw, []byte("\xff\xfe")) || bytes.HasPrefix(raw, []byte("\xfe\xff")) {
+				return nil, fileErr(name, nil, "the file is UTF-16 text (it starts with the byte order mark %X), not UTF-8: save or export it again as UTF-8 text (in a spreadsheet, \"CSV UTF-8\")", raw[:2])
+			}
 			raw = bytes.TrimPrefix(raw, []byte("\xef\xbb\xbf")) // UTF-8 byte order mark
+			if d, ok := sepLine(raw); ok {
+				// A spreadsheet's "sep=;" line names the delimiter.
+				if cfg.delim == 0 {
+					cfg.delim, cfg.whitespace = d, d == ' '
+				}
+				continue
+			}
 		}
 		ln := bytes.TrimRight(raw, "\r\n")
+		if bytes.IndexByte(ln, 0) >= 0 {
+			return nil, lineErr(name, lineNo, "", "", "the line holds NUL bytes: the file is not text, or is UTF-16 text without a byte order mark (save or export it again as UTF-8 text)")
+		}
 		if len(bytes.TrimSpace(ln)) == 0 {
 			continue
 		}
@@ -236,6 +259,46 @@ func newCSVReader(name string, rd io.Reader, cfg *config) (*csvReader, error) {
 	}
 	r.start(carry, startLine)
 	return r, nil
+}
+
+// crLines turns every CR into LF, for text whose lines end in a bare CR.
+type crLines struct{ r io.Reader }
+
+func (c crLines) Read(p []byte) (int, error) {
+	n, err := c.r.Read(p)
+	for i, b := range p[:n] {
+		if b == '\r' {
+			p[i] = '\n'
+		}
+	}
+	return n, err
+}
+
+// emptyRecord reports whether a line holds only delimiters and blanks, as
+// a spreadsheet writes the empty rows below a table (";;;;"): a record
+// without a single value, read as a blank line.
+func emptyRecord(ln []byte, delim byte) bool {
+	for _, b := range ln {
+		if b != delim && b != ' ' && b != '\t' {
+			return false
+		}
+	}
+	return true
+}
+
+// sepLine reports whether the first line of a file is a spreadsheet's
+// delimiter line, "sep=" and one character ("sep=;"), and returns that
+// character.
+func sepLine(raw []byte) (byte, bool) {
+	ln := bytes.TrimRight(raw, "\r\n")
+	if len(ln) != 5 || !bytes.EqualFold(ln[:4], []byte("sep=")) {
+		return 0, false
+	}
+	d := ln[4]
+	if d == '"' || d >= 128 {
+		return 0, false
+	}
+	return d, true
 }
 
 // readLine reads one line including its newline, however long.
@@ -406,9 +469,19 @@ func (r *csvReader) openQuoteErr(rec []byte, open, line int, atEOF bool) *Error 
 
 // headerName turns a header field into a column name: blanks trimmed,
 // quotes removed, and a line break inside a quoted name (a spreadsheet's
-// wrapped "Bx\n(nT)") read as one space.
+// wrapped "Bx\n(nT)") read as one space. A name that is not valid UTF-8
+// is read as Latin-1 (ISO 8859-1), as older spreadsheets save "Bx (µT)",
+// so that its unit is recognised and a mapping can name it.
 func headerName(f []byte) string {
-	s := strings.TrimSpace(string(unquote(f)))
+	f = unquote(f)
+	if !utf8.Valid(f) {
+		r := make([]rune, len(f))
+		for i, b := range f {
+			r[i] = rune(b)
+		}
+		f = []byte(string(r))
+	}
+	s := strings.TrimSpace(string(f))
 	if strings.ContainsAny(s, "\r\n") {
 		s = strings.Join(strings.Fields(strings.NewReplacer("\r", " ", "\n", " ").Replace(s)), " ")
 	}
@@ -646,6 +719,9 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch, plain bool) 
 				continue
 			}
 		}
+		if !r.ws && (ln[0] == r.delim || ln[0] == ' ' || ln[0] == '\t') && emptyRecord(ln, r.delim) {
+			continue
+		}
 		if r.fast && r.fastLine(ln, rb) {
 			rb.line[rb.n] = line
 			rb.n++
@@ -676,8 +752,12 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch, plain bool) 
 			}
 			scale := u.scale
 			if !ok && u.c == cTime {
-				if v, ok = parseTimestamp(t); ok {
+				var zoned bool
+				if v, zoned, ok = parseTimestampZone(t); ok {
 					scale = 1
+					if !zoned && rb.naiveLine == 0 {
+						rb.naiveLine, rb.naiveText = fieldLine(ln, fields[u.src], line), string(t)
+					}
 				}
 			}
 			if !ok || !finite(v) {
@@ -699,6 +779,9 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch, plain bool) 
 						what += " (the file is read with decimal commas, so a point is not a decimal point)"
 					} else if r.delim != ',' && decimalCommaText(t) {
 						what += " (a decimal comma? read the file with decimal commas: --decimal-comma, ingest.WithDecimalComma)"
+					}
+					if _, err := unitScale(kindOf(u.c), string(t)); err == nil && len(t) > 0 {
+						what += " (a row of units under the header? make it a comment line, starting with the comment prefix, or delete it)"
 					}
 					return lineErr(r.name, fieldLine(ln, fields[u.src], line), pl.header[u.src], string(t), "%s %s", quoteText(string(t)), what)
 				} else {
@@ -935,7 +1018,7 @@ func (r *csvReader) parseJob(j csvJob, rb *rawBatch) csvResult {
 			return csvResult{err: backwardsErr(r.name, rb.line[i], pl.header[pl.src[cTime]], t[i], lastTime(t[:i], math.NaN()))}
 		}
 	}
-	res := csvResult{rec: pl.record(r.cfg.mem, rb), lastTime: lastTime(t, math.NaN())}
+	res := csvResult{rec: pl.record(r.cfg.mem, rb), lastTime: lastTime(t, math.NaN()), naiveLine: rb.naiveLine, naiveText: rb.naiveText}
 	if pl.orderGroup {
 		res.lines = append([]int(nil), rb.line[:rb.n]...)
 	}
@@ -998,6 +1081,9 @@ func (r *csvReader) Next() bool {
 				r.stop()
 				return false
 			}
+		}
+		if res.naiveLine > 0 {
+			r.pl.naiveTime(fmt.Sprintf("%s:%d", r.name, res.naiveLine), "times such as "+quoteText(res.naiveText), false)
 		}
 		if res.lastTime == res.lastTime {
 			r.last = res.lastTime

@@ -19,6 +19,23 @@
 // from its name. Readers hand out arrow.RecordBatch values through
 // Next/RecordBatch/Err and hold only a few batches in memory at a time.
 //
+// CSV as spreadsheets export it is read as well: a UTF-8 byte order mark,
+// CRLF or bare CR line ends, a first line "sep=;" naming the delimiter,
+// decimal commas, rows of delimiters alone (the empty rows below a table,
+// skipped like blank lines) and header names saved in Latin-1 ("Bx (µT)").
+// UTF-16 text is refused, with a request for UTF-8. Arrow and Parquet
+// columns may be integers, floats (16, 32 or 64 bits), decimals, text
+// (also large and view strings), dictionary-encoded values of these, and
+// for time timestamps in any unit and zone.
+//
+// Times are seconds, or timestamps: Arrow timestamps count from the Unix
+// epoch in UTC; text times are RFC 3339 ("2026-04-21T09:40:00.5+01:00",
+// "Z", or " UTC"). A text time without its UTC offset, or an Arrow
+// timestamp type without a time zone, is read as UTC with a warning, since
+// local wall-clock times would be off by the zone's offset; a time column
+// whose unit is UTC (from its name, "Time (UTC)", "time_utc", or given)
+// says they are UTC and is not warned about.
+//
 // # Conversions
 //
 // Field units: 1 uT = 1e3 nT, 1 mT = 1e6 nT, 1 G = 1e5 nT, 1 T = 1e9 nT
@@ -72,9 +89,11 @@
 // Every error starts with "ingest:" and names the file and the line (CSV,
 // IAGA-2002; physical lines, so a CSV record spanning several lines is named
 // by the line where the offending field starts) or the batch and row (Arrow,
-// Parquet), the column and the offending text, for example
+// Parquet; both counted from 0, and beyond the first batch the row counted
+// through the file too), the column and the offending text, for example
 //
 //	ingest: log.csv:58: column bz: "1oo.0" is not a number
+//	ingest: log.parquet: batch 2 row 18928 (row 150000 of the file, counting from 0): column by: null value; ...
 //
 // Two columns (or schema fields) of one name, where a mapping would read
 // one of them, are an error naming the header line and both column
@@ -94,7 +113,7 @@
 // Problems that do not stop the reading (same-named columns of which none
 // is read, two names that could both be one canonical column, IAGA-2002
 // variation data in H D Z or H E Z without DECBAS, an unterminated stream
-// accepted on request) are warnings: Warnings(r) for a Reader,
+// accepted on request, times without a UTC offset) are warnings: Warnings(r) for a Reader,
 // Samples.Warnings after Collect or ReadSamples, and Inspection.Warnings.
 //
 // Output files are written through WriteFileAtomic: a temporary file in the

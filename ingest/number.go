@@ -107,32 +107,45 @@ func parseFastAt(b []byte, i int) (v float64, end int, ok bool) {
 	return f, i, true
 }
 
-var timeLayouts = []string{
-	time.RFC3339Nano,
-	"2006-01-02T15:04:05.999999999",
-	"2006-01-02 15:04:05.999999999Z07:00",
-	"2006-01-02 15:04:05.999999999",
-	"2006-01-02T15:04Z07:00",
-	"2006-01-02 15:04",
-	"2006-01-02",
+// timeLayouts are the timestamp forms read; zoned says whether the form
+// carries a UTC offset (or "Z").
+var timeLayouts = []struct {
+	layout string
+	zoned  bool
+}{
+	{time.RFC3339Nano, true},
+	{"2006-01-02T15:04:05.999999999", false},
+	{"2006-01-02 15:04:05.999999999Z07:00", true},
+	{"2006-01-02 15:04:05.999999999", false},
+	{"2006-01-02T15:04Z07:00", true},
+	{"2006-01-02 15:04", false},
+	{"2006-01-02", false},
 }
 
 // parseTimestamp parses an RFC 3339 timestamp (or the same with a space for
 // the T, or without a zone, taken as UTC) into Unix seconds.
 func parseTimestamp(b []byte) (float64, bool) {
+	v, _, ok := parseTimestampZone(b)
+	return v, ok
+}
+
+// parseTimestampZone is parseTimestamp that also tells whether the text
+// gives its zone (a UTC offset, "Z" or " UTC"); one without is read as UTC.
+func parseTimestampZone(b []byte) (v float64, zoned, ok bool) {
 	if len(b) < 10 || b[4] != '-' {
-		return 0, false
+		return 0, false, false
 	}
 	s := string(b)
+	utc := false
 	if bytes.HasSuffix(b, []byte(" UTC")) {
-		s = s[:len(s)-4] + "Z"
+		s, utc = s[:len(s)-4]+"Z", true
 	}
 	for _, l := range timeLayouts {
-		if t, err := time.Parse(l, s); err == nil {
-			return unixSeconds(t), true
+		if t, err := time.Parse(l.layout, s); err == nil {
+			return unixSeconds(t), l.zoned || utc, true
 		}
 	}
-	return 0, false
+	return 0, false, false
 }
 
 func unixSeconds(t time.Time) float64 {

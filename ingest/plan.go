@@ -36,6 +36,29 @@ type plan struct {
 	// may not within a group (WithTimeOrder), checked by groupOrder.
 	orderAll, orderGroup bool
 	groupLast            map[string]*float64 // last time of each group
+	// timeUTC: the time column says its timestamps are UTC (its unit, from
+	// the header as in "Time (UTC)" or given, is UTC, or it is named
+	// "utc"), so timestamps without an offset are not warned about;
+	// naiveWarned: they have been.
+	timeUTC, naiveWarned bool
+}
+
+// naiveTime warns, once per input, that the time column holds timestamps
+// without a UTC offset, which are read as UTC. where is "FILE:LINE",
+// "FILE: batch B row R" or "FILE"; what names them ("times such as
+// \"2026-04-21T09:40:00\"", "timestamps of type timestamp[ms] without a
+// time zone").
+func (p *plan) naiveTime(where, what string, typed bool) {
+	if p.timeUTC || p.naiveWarned {
+		return
+	}
+	p.naiveWarned = true
+	fix := "write the offset into the times (2026-04-21T09:40:00+01:00)"
+	if typed {
+		fix = "store them as timestamps with a time zone"
+	}
+	p.warn("%s: column %s: %s give no UTC offset and are read as UTC; if they are local times, every time is off by the zone's offset (a base-station correction then pairs the wrong readings): %s, or, if they are UTC, say so with the unit UTC (on the command line --unit time=UTC)",
+		where, p.header[p.src[cTime]], what, fix)
 }
 
 // warn records a warning (see Warnings).
@@ -216,6 +239,10 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 			return nil, &Error{File: file, Batch: -1, Column: canonNames[c], Msg: err.Error()}
 		}
 		p.unit[c], p.scale[c] = u, s
+	}
+	if p.src[cTime] >= 0 {
+		u := strings.ToLower(p.unit[cTime])
+		p.timeUTC = u == "utc" || u == "gmt" || strings.EqualFold(strings.TrimSpace(header[p.src[cTime]]), "utc")
 	}
 	if types != nil {
 		for c := 0; c < nCanon; c++ {
@@ -477,6 +504,10 @@ type rawBatch struct {
 	f     [nCanon][]float64
 	group []string
 	line  []int // source line of each row (text formats)
+	// naiveLine is the line of the first timestamp without a UTC offset
+	// (0: none), naiveText its text.
+	naiveLine int
+	naiveText string
 }
 
 func (rb *rawBatch) reset(p *plan) {
@@ -486,6 +517,7 @@ func (rb *rawBatch) reset(p *plan) {
 	}
 	rb.group = rb.group[:0]
 	rb.line = rb.line[:0]
+	rb.naiveLine, rb.naiveText = 0, ""
 }
 
 // transform applies the frame and position conversions in place.

@@ -60,8 +60,12 @@ func unitScale(k kind, u string) (float64, error) {
 			return 1e-6, nil
 		case "ns":
 			return 1e-9, nil
+		case "utc", "gmt":
+			// Seconds, and timestamps written without a UTC offset
+			// are UTC ("Time (UTC)"): said, so not warned about.
+			return 1, nil
 		}
-		return 0, fmt.Errorf("unknown time unit %q (want s, ms, us or ns)", u)
+		return 0, fmt.Errorf("unknown time unit %q (want s, ms, us, ns, or UTC for timestamps in UTC)", u)
 	case kindTemp:
 		switch s {
 		case "C", "degC", "°C", "c":
