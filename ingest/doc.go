@@ -106,7 +106,11 @@
 // streams with the marker. An Arrow IPC file or a Parquet file cut short
 // (without its closing magic bytes) is an error saying so. In
 // IAGA-2002 files a day of year that disagrees with the date, or a value
-// after the four elements, is an error.
+// after the four elements, is an error. IAGA-2002 files joined end to end
+// (one day's file after another's, for a base station across midnight UTC)
+// are read as one series when each later header gives the same IAGA code,
+// data type, data interval type, DECBAS and column line as the first;
+// otherwise the later header is an error naming its line.
 //
 // # Warnings
 //
