@@ -282,6 +282,7 @@ func (r *arrowReader) Next() bool {
 			return false
 		}
 		if rec == nil {
+			r.pl.finishGroups()
 			r.Release()
 			return false
 		}
@@ -301,6 +302,10 @@ func (r *arrowReader) Next() bool {
 			out.Release()
 			continue
 		}
+		if gi := r.groupIndex(); gi >= 0 {
+			n, first := emptyGroups(out.Column(gi))
+			r.pl.noteGroups(int(out.NumRows()), n, func() string { return r.name + batchRow(r.batch-1, first, start+int64(first)) })
+		}
 		if r.pl.orderGroup {
 			if i, prev, g := r.pl.groupBackwards(out); i >= 0 {
 				t := out.Column(0).(*array.Float64).Value(i)
@@ -315,6 +320,16 @@ func (r *arrowReader) Next() bool {
 		r.cur = out
 		return true
 	}
+}
+
+// groupIndex is the index of the group column in an output batch, or -1.
+func (r *arrowReader) groupIndex() int {
+	for i, c := range r.pl.out {
+		if c == cGroup {
+			return i
+		}
+	}
+	return -1
 }
 
 func (r *arrowReader) read() (rec arrow.RecordBatch, err error) {

@@ -86,6 +86,9 @@ type csvResult struct {
 	lines     []int // line of each row, for TimeOrderedPerGroup
 	naiveLine int   // line of the first timestamp without a UTC offset, 0 if none
 	naiveText string
+	rows      int // rows in rec
+	noGroup   int // rows with an empty group cell
+	noGroupAt int // line of the first of them
 }
 
 func (r *csvReader) plan() *plan                    { return r.pl }
@@ -1022,6 +1025,17 @@ func (r *csvReader) parseJob(j csvJob, rb *rawBatch) csvResult {
 	if pl.orderGroup {
 		res.lines = append([]int(nil), rb.line[:rb.n]...)
 	}
+	res.rows = rb.n
+	if pl.src[cGroup] >= 0 {
+		for i, g := range rb.group {
+			if g == "" {
+				if res.noGroup == 0 {
+					res.noGroupAt = rb.line[i]
+				}
+				res.noGroup++
+			}
+		}
+	}
 	res.firstTime, res.firstLine = firstTime(t, rb.line)
 	return res
 }
@@ -1052,6 +1066,7 @@ func (r *csvReader) Next() bool {
 	for {
 		ch, ok := <-r.pending
 		if !ok {
+			r.pl.finishGroups()
 			return false
 		}
 		res := <-ch
@@ -1081,6 +1096,9 @@ func (r *csvReader) Next() bool {
 				r.stop()
 				return false
 			}
+		}
+		if r.pl.src[cGroup] >= 0 {
+			r.pl.noteGroups(res.rows, res.noGroup, func() string { return fmt.Sprintf("%s:%d", r.name, res.noGroupAt) })
 		}
 		if res.naiveLine > 0 {
 			r.pl.naiveTime(fmt.Sprintf("%s:%d", r.name, res.naiveLine), "times such as "+quoteText(res.naiveText), false)

@@ -82,7 +82,11 @@
 // NaN in the record batches and in Samples; Collect counts the rows with a
 // missing field value in Meta["missing_rows"]. In other formats an empty
 // cell, a NaN or an Arrow null in a numeric column is an error unless
-// WithAllowMissing is given, in which case it is NaN.
+// WithAllowMissing is given, in which case it is NaN. A row whose group
+// cell is empty or null has no group: its group is "" in every format
+// (Inspect counts it as missing), and when other rows do have a group a
+// warning says how many have none, since a fit by group would take them as
+// one more group.
 //
 // # Errors
 //
@@ -117,7 +121,8 @@
 // Problems that do not stop the reading (same-named columns of which none
 // is read, two names that could both be one canonical column, IAGA-2002
 // variation data in H D Z or H E Z without DECBAS, an unterminated stream
-// accepted on request, times without a UTC offset) are warnings: Warnings(r) for a Reader,
+// accepted on request, times without a UTC offset, rows without a group
+// among rows with one) are warnings: Warnings(r) for a Reader,
 // Samples.Warnings after Collect or ReadSamples, and Inspection.Warnings.
 //
 // Output files are written through WriteFileAtomic: a temporary file in the

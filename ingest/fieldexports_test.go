@@ -644,3 +644,83 @@ func TestInspectTimeUnitGuess(t *testing.T) {
 		}
 	}
 }
+
+// TestRowsWithoutGroup: a group column (traverse, sensor) whose cell is
+// empty in some rows (a logger that marks the traverse only while on it)
+// or null (in Arrow a null slot holds no value, by its validity bitmap:
+// Arrow columnar format, "Validity bitmaps"). Such rows have no group:
+// read as the group "" in every format (a null was read as the text
+// "(null)" when the batch was passed through), counted as missing by
+// Inspect, and warned about at the end of the input, since a fit by group
+// takes them as one group of their own. A group column empty throughout
+// groups nothing and is not warned about.
+func TestRowsWithoutGroup(t *testing.T) {
+	const warn = "rows without a group (an empty cell or a null): 2 of 5, the first here"
+	text := "time,bx,by,bz,traverse\n0,1,2,3,T01\n1,1,2,3,\n2,1,2,3,T01\n3,1,2,3,\n4,1,2,3,T02\n"
+	s, err := ReadSamples(writeFile(t, "log.csv", text), WithAllocator(checked(t)))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if strings.Join(s.Group, "|") != "T01||T01||T02" {
+		t.Errorf("groups %q", s.Group)
+	}
+	if got := warningsWith(s.Warnings, "without a group"); len(got) != 1 || !strings.Contains(got[0], "log.csv:3: column traverse: "+warn) {
+		t.Errorf("warnings %q, want one naming line 3", s.Warnings)
+	}
+	in, err := Inspect(writeFile(t, "log.csv", text))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if g := colStats(in, ColGroup); g == nil || g.Missing != 2 {
+		t.Errorf("inspect: group stats %+v, want 2 missing", g)
+	}
+	s, err = ReadSamples(writeFile(t, "none.csv", "time,bx,by,bz,traverse\n0,1,2,3,\n1,1,2,3,\n"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got := warningsWith(s.Warnings, "without a group"); len(got) != 0 {
+		t.Errorf("group column empty throughout: warnings %q, want none", got)
+	}
+
+	sc := arrow.NewSchema([]arrow.Field{
+		{Name: "time", Type: arrow.PrimitiveTypes.Float64},
+		{Name: "bx", Type: arrow.PrimitiveTypes.Float64},
+		{Name: "by", Type: arrow.PrimitiveTypes.Float64},
+		{Name: "bz", Type: arrow.PrimitiveTypes.Float64},
+		{Name: "group", Type: arrow.BinaryTypes.String, Nullable: true},
+	}, nil)
+	batch := func(t0 float64, groups []string, valid []bool) func(*array.RecordBuilder) {
+		return func(b *array.RecordBuilder) {
+			for i := range groups {
+				for k := 0; k < 4; k++ {
+					b.Field(k).(*array.Float64Builder).Append(t0 + float64(i))
+				}
+			}
+			b.Field(4).(*array.StringBuilder).AppendValues(groups, valid)
+		}
+	}
+	for _, name := range []string{"log.arrows", "log.arrow", "log.parquet"} {
+		p := writeArrowBatches(t, name, sc, batch(0, []string{"T01", "T01"}, nil), batch(2, []string{"", "T01", "x"}, []bool{true, true, false}))
+		s, err := ReadSamples(p, WithAllocator(checked(t)))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if strings.Join(s.Group, "|") != "T01|T01||T01|" {
+			t.Errorf("%s: groups %q, want the null read as no group", name, s.Group)
+		}
+		want := name + ": batch 1 row 0 (row 2 of the file, counting from 0): column group: " + warn
+		if name == "log.parquet" { // one row group, read as one batch
+			want = name + ": batch 0 row 2: column group: " + warn
+		}
+		if got := warningsWith(s.Warnings, "without a group"); len(got) != 1 || !strings.Contains(got[0], want) {
+			t.Errorf("%s: warnings %q, want %q", name, s.Warnings, want)
+		}
+		in, err := Inspect(p)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if g := colStats(in, ColGroup); g == nil || g.Missing != 2 {
+			t.Errorf("%s: inspect: group stats %+v, want 2 missing", name, g)
+		}
+	}
+}

@@ -128,8 +128,8 @@ func Inspect(path string, opts ...Option) (*Inspection, error) {
 		cols := make([][]float64, n)
 		for i, c := range pl.out {
 			if c == cGroup {
-				g := rec.Column(i)
-				missing[i] += g.NullN()
+				n, _ := emptyGroups(rec.Column(i)) // nulls and empty cells
+				missing[i] += n
 				continue
 			}
 			cols[i] = rec.Column(i).(*array.Float64).Float64Values()

@@ -41,6 +41,51 @@ type plan struct {
 	// "utc"), so timestamps without an offset are not warned about;
 	// naiveWarned: they have been.
 	timeUTC, naiveWarned bool
+	// Rows read, and rows without a group (an empty cell or a null in the
+	// group column), the first of them at groupEmptyAt (see noteGroups).
+	groupRows, groupEmpty int64
+	groupEmptyAt          string
+}
+
+// noteGroups counts the rows of a batch and those among them with no
+// group (empty text or null); where tells the place of the first of
+// those, for the warning.
+func (p *plan) noteGroups(rows, empty int, where func() string) {
+	p.groupRows += int64(rows)
+	if empty > 0 && p.groupEmpty == 0 {
+		p.groupEmptyAt = where()
+	}
+	p.groupEmpty += int64(empty)
+}
+
+// finishGroups warns, at the end of the input, when some rows have a
+// group and some have none: a fit by group would take the rows without one
+// (between traverses, a sensor id not logged) as one more group of their
+// own. A group column that is empty throughout groups nothing and is not
+// warned about.
+func (p *plan) finishGroups() {
+	if p.src[cGroup] < 0 || p.groupEmpty == 0 || p.groupEmpty == p.groupRows {
+		return
+	}
+	p.warn("%s: column %s: rows without a group (an empty cell or a null): %d of %d, the first here; a fit by group takes them as one more group of their own (fill in their group, or remove those rows)",
+		p.groupEmptyAt, p.header[p.src[cGroup]], p.groupEmpty, p.groupRows)
+	p.groupEmpty = 0 // warned once
+}
+
+// emptyGroups counts the rows of a canonical group column with no group
+// (a null or empty text) and returns the first such row, or -1.
+func emptyGroups(g arrow.Array) (n, first int) {
+	first = -1
+	s, _ := g.(*array.String)
+	for i := 0; i < g.Len(); i++ {
+		if g.IsNull(i) || (s != nil && s.Value(i) == "") {
+			if first < 0 {
+				first = i
+			}
+			n++
+		}
+	}
+	return n, first
 }
 
 // naiveTime warns, once per input, that the time column holds timestamps
