@@ -568,6 +568,9 @@ func (r *arrowReader) floats(dst []float64, arr arrow.Array, c int) ([]float64, 
 				if isMissingText(t) {
 					return nil, rowErr(r.name, r.batch, i, col, text, "missing value %s; missing values are not allowed by default", quoteText(text))
 				}
+				if c == cTime {
+					return nil, rowErr(r.name, r.batch, i, col, text, "%s is not a number or an RFC 3339 time%s", quoteText(text), timeHint(t))
+				}
 				return nil, rowErr(r.name, r.batch, i, col, text, "%s is not a number", quoteText(text))
 			}
 			if !ok {

@@ -776,7 +776,7 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch, plain bool) 
 				} else if !ok {
 					what := "is not a number"
 					if u.c == cTime {
-						what = "is not a number or an RFC 3339 time"
+						what = "is not a number or an RFC 3339 time" + timeHint(t)
 					}
 					if r.decComma {
 						what += " (the file is read with decimal commas, so a point is not a decimal point)"

@@ -603,6 +603,44 @@ func TestCSVSpreadsheetExports(t *testing.T) {
 		wantErr(t, err, `mac.csv:4: column bx: "4S9.5" is not a number`)
 	})
 
+	// Times a logger or spreadsheet writes that are no instant: a time of
+	// day beside a separate date column, a date in a local day/month order
+	// (RFC 3339 section 5.6 has neither). Refused at their line, with a
+	// hint saying what they look like; other text gets no hint.
+	t.Run("time hints", func(t *testing.T) {
+		const clock = "(a time of day without its date?"
+		const local = "(a date in a local order"
+		for _, c := range []struct{ text, hint string }{
+			{"08:40:00.1", clock}, {"8:40", clock}, {"08:40:00,5", clock},
+			{"21/04/2026 08:40:00", local}, {"4/21/2026 9:40", local}, {"21.04.2026", local},
+			{"1.2.3", ""}, {"12:3a", ""}, {"T+5", ""},
+		} {
+			_, err := ReadSamples(writeFile(t, "log.csv", "Date;Time;bx;by;bz\n2026-04-21;"+c.text+";1;2;3\n"))
+			wantErr(t, err, `log.csv:2: column Time: "`+c.text+`" is not a number or an RFC 3339 time`)
+			if got := strings.Contains(err.Error(), "(a time of day") || strings.Contains(err.Error(), "(a date in"); c.hint == "" && got {
+				t.Errorf("%q: %v, want no hint", c.text, err)
+			}
+			if c.hint != "" && !strings.Contains(err.Error(), c.hint) {
+				t.Errorf("%q: %v, want the hint %q", c.text, err, c.hint)
+			}
+		}
+		// In Arrow text too.
+		sc := arrow.NewSchema([]arrow.Field{
+			{Name: "time", Type: arrow.BinaryTypes.String},
+			{Name: "bx", Type: arrow.PrimitiveTypes.Float64},
+			{Name: "by", Type: arrow.PrimitiveTypes.Float64},
+			{Name: "bz", Type: arrow.PrimitiveTypes.Float64},
+		}, nil)
+		p := writeArrowBatches(t, "log.arrows", sc, func(b *array.RecordBuilder) {
+			b.Field(0).(*array.StringBuilder).Append("08:40:00.1")
+			for k := 1; k < 4; k++ {
+				b.Field(k).(*array.Float64Builder).Append(1)
+			}
+		})
+		_, err := ReadSamples(p)
+		wantErr(t, err, `log.arrows: batch 0 row 0: column time: "08:40:00.1" is not a number or an RFC 3339 time `+clock)
+	})
+
 	// A row of units under the header is refused at its line, with a hint.
 	t.Run("units row", func(t *testing.T) {
 		_, err := ReadSamples(writeFile(t, "units.csv", "time;bx;by;bz\ns;nT;nT;nT\n0;1;2;3\n"))

@@ -148,6 +148,38 @@ func parseTimestampZone(b []byte) (v float64, zoned, ok bool) {
 	return 0, false, false
 }
 
+// timeHint says what a time that is neither a number nor an RFC 3339
+// time looks like, for the message refusing it: a time of day without its
+// date (a logger's separate Date and Time columns), or a date written with
+// slashes (a spreadsheet's locale). "" when it looks like neither.
+func timeHint(b []byte) string {
+	clock := func(b []byte) bool { // h:mm, hh:mm:ss, hh:mm:ss.fff
+		n := 0
+		for _, part := range bytes.Split(b, []byte(":")) {
+			n++
+			if len(part) == 0 {
+				return false
+			}
+			for i, c := range part {
+				if (c < '0' || c > '9') && !(n == 3 && i >= 2 && (c == '.' || c == ',')) {
+					return false
+				}
+			}
+		}
+		return n == 2 || n == 3
+	}
+	if clock(b) {
+		return " (a time of day without its date? time needs the date too: join a separate date column to it, as in 2026-04-21T08:40:00Z)"
+	}
+	date, _, _ := bytes.Cut(b, []byte(" ")) // 21/04/2026, 4/21/2026 9:40, 21.04.2026 09:40:00
+	for _, sep := range []byte{'/', '.'} {
+		if len(date) >= 6 && bytes.Count(date, []byte{sep}) == 2 && len(bytes.Trim(date, "0123456789"+string(sep))) == 0 {
+			return " (a date in a local order, day and month as a spreadsheet writes them? write times as RFC 3339, as in 2026-04-21T08:40:00Z)"
+		}
+	}
+	return ""
+}
+
 func unixSeconds(t time.Time) float64 {
 	return float64(t.Unix()) + float64(t.Nanosecond())/1e9
 }
