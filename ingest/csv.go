@@ -53,9 +53,13 @@ type csvReader struct {
 	done     chan struct{}
 	wg       sync.WaitGroup
 	stopped  bool
-	cur      arrow.RecordBatch
-	err      error
-	last     float64
+	// nulAt is the line of a run of NUL bytes without a line end that
+	// split dropped (0: none); written by split, read after it ends.
+	nulAt   int
+	nulLine int // first line of NUL bytes alone skipped by the parsers
+	cur     arrow.RecordBatch
+	err     error
+	last    float64
 }
 
 const (
@@ -89,6 +93,7 @@ type csvResult struct {
 	rows      int // rows in rec
 	noGroup   int // rows with an empty group cell
 	noGroupAt int // line of the first of them
+	nulLine   int // first line of NUL bytes alone, skipped; 0 if none
 }
 
 func (r *csvReader) plan() *plan                    { return r.pl }
@@ -716,6 +721,15 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch, plain bool) 
 		if len(ln) == 0 {
 			continue
 		}
+		if ln[0] == 0 && len(bytes.Trim(ln, "\x00")) == 0 {
+			// NUL bytes alone: the unwritten end of a logger's
+			// preallocated file, or a damaged stretch. Skipped, and
+			// warned about (see Next).
+			if rb.nulLine == 0 {
+				rb.nulLine = line
+			}
+			continue
+		}
 		if ln[0] == ' ' || ln[0] == '\t' || (len(comment) > 0 && ln[0] == comment[0]) {
 			t := bytes.TrimSpace(ln)
 			if len(t) == 0 || (len(comment) > 0 && bytes.HasPrefix(t, comment)) {
@@ -956,6 +970,16 @@ func (r *csvReader) split(carry []byte, line int) {
 			return
 		}
 		cut, open, plain := r.lastRecordEnd(data)
+		if cut < 0 && len(data) > 0 && data[0] == 0 && len(bytes.Trim(data, "\x00")) == 0 {
+			// A run of NUL bytes without a line end (a logger's
+			// preallocated file, however long): dropped as it comes.
+			if r.nulAt == 0 {
+				r.nulAt = line
+			}
+			carry = carry[:0]
+			putChunk(buf)
+			continue
+		}
 		if cut < 0 {
 			if len(data) > maxLineBytes {
 				if open >= 0 {
@@ -1002,7 +1026,7 @@ func (r *csvReader) parseJob(j csvJob, rb *rawBatch) csvResult {
 	rb.reset(pl)
 	err := r.parseChunk(j.data, j.line, rb, j.plain)
 	if err != nil || rb.n == 0 {
-		res := csvResult{err: err, firstTime: math.NaN(), lastTime: math.NaN()}
+		res := csvResult{err: err, firstTime: math.NaN(), lastTime: math.NaN(), nulLine: rb.nulLine}
 		if err != nil && r.pl.orderAll {
 			// A step back in time on a row before the bad one comes
 			// first in the file, whatever the chunking: report that.
@@ -1021,7 +1045,7 @@ func (r *csvReader) parseJob(j csvJob, rb *rawBatch) csvResult {
 			return csvResult{err: backwardsErr(r.name, rb.line[i], pl.header[pl.src[cTime]], t[i], lastTime(t[:i], math.NaN()))}
 		}
 	}
-	res := csvResult{rec: pl.record(r.cfg.mem, rb), lastTime: lastTime(t, math.NaN()), naiveLine: rb.naiveLine, naiveText: rb.naiveText}
+	res := csvResult{rec: pl.record(r.cfg.mem, rb), lastTime: lastTime(t, math.NaN()), naiveLine: rb.naiveLine, naiveText: rb.naiveText, nulLine: rb.nulLine}
 	if pl.orderGroup {
 		res.lines = append([]int(nil), rb.line[:rb.n]...)
 	}
@@ -1067,9 +1091,20 @@ func (r *csvReader) Next() bool {
 		ch, ok := <-r.pending
 		if !ok {
 			r.pl.finishGroups()
+			// split has ended (it closed pending): r.nulAt is settled.
+			at := r.nulLine
+			if r.nulAt > 0 && (at == 0 || r.nulAt < at) {
+				at = r.nulAt
+			}
+			if at > 0 {
+				r.pl.warn("%s:%d: lines of nothing but NUL bytes skipped, the first here: the unwritten end of a logger's preallocated file, or a damaged stretch of the file (rows may be missing there)", r.name, at)
+			}
 			return false
 		}
 		res := <-ch
+		if res.nulLine > 0 && r.nulLine == 0 {
+			r.nulLine = res.nulLine
+		}
 		if res.err != nil {
 			r.err = res.err
 			if r.pl.orderAll && res.firstLine > 0 && res.firstTime < r.last {

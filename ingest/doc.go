@@ -23,6 +23,8 @@
 // CRLF or bare CR line ends, a first line "sep=;" naming the delimiter,
 // decimal commas, rows of delimiters alone (the empty rows below a table,
 // skipped like blank lines) and header names saved in Latin-1 ("Bx (µT)").
+// Lines of nothing but NUL bytes (the unwritten end of a logger's
+// preallocated file, however long) are skipped with a warning.
 // UTF-16 text is refused, with a request for UTF-8. Arrow and Parquet
 // columns may be integers, floats (16, 32 or 64 bits), decimals, text
 // (also large and view strings), dictionary-encoded values of these, and

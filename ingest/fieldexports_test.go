@@ -641,6 +641,39 @@ func TestCSVSpreadsheetExports(t *testing.T) {
 		wantErr(t, err, `log.arrows: batch 0 row 0: column time: "08:40:00.1" is not a number or an RFC 3339 time `+clock)
 	})
 
+	// A logger that preallocates its file leaves the unwritten end as NUL
+	// bytes (0x00, ASCII NUL), with or without line ends, however long;
+	// a damaged card can hold such a stretch in the middle. Lines of
+	// nothing but NUL bytes are skipped with a warning naming the first;
+	// NUL bytes among a line's data are still refused at that line.
+	t.Run("NUL padding", func(t *testing.T) {
+		head := "time,bx,by,bz\n0,458.25,1,2\n1,459.5,1,2\n"
+		for _, c := range []struct {
+			name, text string
+			chunk      int
+		}{
+			{"tail without line end", head + strings.Repeat("\x00", 5000), 1 << 20},
+			{"tail longer than a line may be", head + strings.Repeat("\x00", maxLineBytes+1000), 1 << 20},
+			{"tail across small chunks", head + strings.Repeat("\x00", 5000), 256},
+			{"tail with line ends", head + strings.Repeat("\x00", 700) + "\n" + strings.Repeat("\x00", 300) + "\n", 1 << 20},
+			{"in the middle", "time,bx,by,bz\n0,458.25,1,2\n" + strings.Repeat("\x00", 300) + "\n1,459.5,1,2\n", 1 << 20},
+		} {
+			s, err := ReadSamples(writeFile(t, "log.csv", c.text), withChunkBytes(c.chunk), WithAllocator(checked(t)))
+			if err != nil {
+				t.Fatalf("%s: %v", c.name, err)
+			}
+			if !sameFloats(s.Bx, want) {
+				t.Errorf("%s: bx %v", c.name, s.Bx)
+			}
+			if got := warningsWith(s.Warnings, "NUL"); len(got) != 1 || !strings.Contains(got[0], "log.csv:4: lines of nothing but NUL bytes skipped, the first here") &&
+				!(c.name == "in the middle" && strings.Contains(got[0], "log.csv:3: lines of nothing but NUL bytes skipped")) {
+				t.Errorf("%s: warnings %q", c.name, s.Warnings)
+			}
+		}
+		_, err := ReadSamples(writeFile(t, "log.csv", "time,bx,by,bz\n0,458.25,1,2\n1,45\x00\x00\x009.5,1,2\n"))
+		wantErr(t, err, `log.csv:3: column bx: "45\x00\x00\x009.5" is not a number`)
+	})
+
 	// A row of units under the header is refused at its line, with a hint.
 	t.Run("units row", func(t *testing.T) {
 		_, err := ReadSamples(writeFile(t, "units.csv", "time;bx;by;bz\ns;nT;nT;nT\n0;1;2;3\n"))

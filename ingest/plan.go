@@ -553,6 +553,7 @@ type rawBatch struct {
 	// (0: none), naiveText its text.
 	naiveLine int
 	naiveText string
+	nulLine   int // first line of NUL bytes alone, skipped (text formats)
 }
 
 func (rb *rawBatch) reset(p *plan) {
@@ -562,7 +563,7 @@ func (rb *rawBatch) reset(p *plan) {
 	}
 	rb.group = rb.group[:0]
 	rb.line = rb.line[:0]
-	rb.naiveLine, rb.naiveText = 0, ""
+	rb.naiveLine, rb.naiveText, rb.nulLine = 0, "", 0
 }
 
 // transform applies the frame and position conversions in place.
