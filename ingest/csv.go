@@ -970,13 +970,15 @@ func (r *csvReader) split(carry []byte, line int) {
 			return
 		}
 		cut, open, plain := r.lastRecordEnd(data)
-		if cut < 0 && len(data) > 0 && data[0] == 0 && len(bytes.Trim(data, "\x00")) == 0 {
-			// A run of NUL bytes without a line end (a logger's
-			// preallocated file, however long): dropped as it comes.
+		if cut < 0 && len(data) > maxLineBytes && data[0] == 0 && len(bytes.Trim(data, "\x00")) == 0 {
+			// A run of NUL bytes longer than a line may be (a logger's
+			// preallocated file): dropped as it comes but for its last
+			// byte, so that the line is judged as any other when it
+			// ends (skipped if NULs alone, refused if data follow).
 			if r.nulAt == 0 {
 				r.nulAt = line
 			}
-			carry = carry[:0]
+			carry = append(carry[:0], 0)
 			putChunk(buf)
 			continue
 		}
