@@ -584,7 +584,7 @@ func (r *arrowReader) floats(dst []float64, arr arrow.Array, c int) ([]float64, 
 			return nil, rowErr(r.name, r.batch, i, col, strconv.FormatFloat(v, 'g', -1, 64), "value is infinite")
 		}
 		if s != 1 {
-			v *= s
+			v = scaled(v, s)
 		}
 		dst = append(dst, v)
 	}

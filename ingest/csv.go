@@ -806,7 +806,7 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch, plain bool) 
 				}
 			}
 			if scale != 1 {
-				v *= scale
+				v = scaled(v, scale)
 			}
 			rb.f[u.c][rb.n] = v
 		}
@@ -871,7 +871,7 @@ func (r *csvReader) fastLine(ln []byte, rb *rawBatch) bool {
 		if !ok || (end < n && ln[end] != d) {
 			return false
 		}
-		rb.f[op][row] = v * r.opScale[k] // exact when the scale is 1
+		rb.f[op][row] = scaled(v, r.opScale[k])
 		p = end + 1
 	}
 	if p < n {

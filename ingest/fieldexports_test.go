@@ -795,3 +795,74 @@ func TestRowsWithoutGroup(t *testing.T) {
 		}
 	}
 }
+
+// TestSmallUnitsExact: a value in a unit that is a negative power of ten
+// of the canonical one (SI prefixes milli, micro, nano, centi, pico: BIPM,
+// The International System of Units, 9th edition, table 7) reads as the
+// float64 nearest the exact quotient (IEEE 754 round to nearest, as
+// strconv.ParseFloat gives the same decimal), in CSV text and in Arrow
+// integer columns: 1772359200100 ms is 1772359200.1 s, where multiplying by
+// the inexact 1e-3 gave 1772359200.1000001; 48213520 pT is 48213.52 nT, not
+// 48213.520000000004; 305 cm is 3.05 m, not 3.0500000000000003.
+func TestSmallUnitsExact(t *testing.T) {
+	parse := func(s string) float64 {
+		v, err := strconv.ParseFloat(s, 64)
+		if err != nil {
+			t.Fatal(err)
+		}
+		return v
+	}
+	cases := []struct {
+		unit, text string
+		want       float64
+	}{
+		{"time=ms", "1772359200100", parse("1772359200.1")},
+		{"time=ns", "1772359200100000000", parse("1772359200.1")},
+		{"bx=pT", "48213520", parse("48213.52")},
+		{"x=cm", "305", parse("3.05")},
+	}
+	for _, c := range cases {
+		col, _, _ := strings.Cut(c.unit, "=")
+		row := map[string]string{"time": "0", "x": "0", "bx": "0"}
+		row[col] = c.text
+		text := "time,x,y,z,bx,by,bz\n" + row["time"] + "," + row["x"] + ",0,0," + row["bx"] + ",17600,-46900\n"
+		for _, opts := range [][]Option{nil, {withSlowPathOnly()}} {
+			s, err := ReadSamples(writeFile(t, "log.csv", text), append(opts, WithUnits(c.unit))...)
+			if err != nil {
+				t.Fatal(err)
+			}
+			got := map[string]float64{"time": s.Time[0], "x": s.X[0], "bx": s.Bx[0]}[col]
+			if got != c.want {
+				t.Errorf("CSV %s %s (%d options): %.17g, want %.17g", c.unit, c.text, len(opts), got, c.want)
+			}
+		}
+		// The same count as an Arrow int64 column.
+		v, _ := strconv.ParseInt(c.text, 10, 64)
+		var fields []arrow.Field
+		for _, n := range []string{"time", "x", "bx", "by", "bz"} {
+			typ := arrow.DataType(arrow.PrimitiveTypes.Float64)
+			if n == col {
+				typ = arrow.PrimitiveTypes.Int64
+			}
+			fields = append(fields, arrow.Field{Name: n, Type: typ})
+		}
+		sc := arrow.NewSchema(fields, nil)
+		p := writeArrowBatches(t, "log.arrows", sc, func(b *array.RecordBuilder) {
+			for i, f := range sc.Fields() {
+				if f.Name == col {
+					b.Field(i).(*array.Int64Builder).Append(v)
+				} else {
+					b.Field(i).(*array.Float64Builder).Append(1)
+				}
+			}
+		})
+		s, err := ReadSamples(p, WithUnits(c.unit))
+		if err != nil {
+			t.Fatal(err)
+		}
+		got := map[string]float64{"time": s.Time[0], "x": s.X[0], "bx": s.Bx[0]}[col]
+		if got != c.want {
+			t.Errorf("Arrow %s %s: %.17g, want %.17g", c.unit, c.text, got, c.want)
+		}
+	}
+}
