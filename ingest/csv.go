@@ -721,6 +721,11 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch, plain bool) 
 		if len(ln) == 0 {
 			continue
 		}
+		if len(ln) == 1 && ln[0] == 0x1a {
+			// SUB, the end-of-file mark of CP/M and MS-DOS text, as
+			// old tools still append it.
+			continue
+		}
 		if ln[0] == 0 && len(bytes.Trim(ln, "\x00")) == 0 {
 			// NUL bytes alone: the unwritten end of a logger's
 			// preallocated file, or a damaged stretch. Skipped, and

@@ -674,6 +674,21 @@ func TestCSVSpreadsheetExports(t *testing.T) {
 		wantErr(t, err, `log.csv:3: column bx: "45\x00\x00\x009.5" is not a number`)
 	})
 
+	// SUB (0x1A, ASCII), the end-of-file mark of CP/M and MS-DOS text,
+	// alone on the last line as old tools append it, ends the text; SUB
+	// anywhere else is refused as before.
+	t.Run("SUB at the end", func(t *testing.T) {
+		s, err := ReadSamples(writeFile(t, "log.csv", "time,bx,by,bz\r\n0,458.25,1,2\r\n1,459.5,1,2\r\n\x1a"), WithAllocator(checked(t)))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !sameFloats(s.Bx, want) {
+			t.Errorf("bx %v", s.Bx)
+		}
+		_, err = ReadSamples(writeFile(t, "log.csv", "time,bx,by,bz\n0,458.25,1,2\n1,459.5,1,\x1a\n"))
+		wantErr(t, err, `log.csv:3: column bz: "\x1a" is not a number`)
+	})
+
 	// A row of units under the header is refused at its line, with a hint.
 	t.Run("units row", func(t *testing.T) {
 		_, err := ReadSamples(writeFile(t, "units.csv", "time;bx;by;bz\ns;nT;nT;nT\n0;1;2;3\n"))

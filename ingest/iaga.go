@@ -302,7 +302,10 @@ func (r *iagaReader) Next() bool {
 			break
 		}
 		r.line++
-		ln := bytes.TrimRight(raw, "\r\n")
+		// SUB (0x1A), the end-of-file mark of CP/M and MS-DOS text, as
+		// old tools still append it: at the start of a line it ends the
+		// text of a file (joined files have it before the next header).
+		ln := bytes.TrimLeft(bytes.TrimRight(raw, "\r\n"), "\x1a")
 		if len(bytes.TrimSpace(ln)) == 0 {
 			continue
 		}

@@ -75,6 +75,16 @@ func TestIAGAJoinedDays(t *testing.T) {
 		{"header cut short", string(day1) + strings.Join(strings.SplitAfter(string(day2), "\n")[:5], ""),
 			"bou.min:1466: IAGA-2002 header (of a file joined on here?) without a DATE TIME DOY column line"},
 	}
+	// SUB (0x1A), the CP/M and MS-DOS end-of-file mark, after a day's
+	// file as old tools append it: the end of that file's text.
+	s, err = ReadSamples(writeFile(t, "bou-sub.min", string(day1)+"\x1a"+string(day2)+"\x1a"), WithAllocator(checked(t)))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if s.Len() != 2880 || !sameFloats(s.Bx, append(append([]float64(nil), a.Bx...), b.Bx...)) {
+		t.Errorf("with SUB after each day: %d rows, or other values", s.Len())
+	}
+
 	if !strings.HasPrefix(strings.Split(string(day2), "\n")[0], " Format") || strings.Count(string(day1), "\n") != second-1 {
 		t.Fatalf("the real files are not laid out as this test expects")
 	}
