@@ -302,6 +302,14 @@ func (r *arrowReader) Next() bool {
 			out.Release()
 			continue
 		}
+		if !r.pl.timeChecked {
+			for i, v := range out.Column(0).(*array.Float64).Float64Values() {
+				if v == v {
+					r.pl.checkTimeUnit(v, r.name+batchRow(r.batch-1, i, start+int64(i)))
+					break
+				}
+			}
+		}
 		if gi := r.groupIndex(); gi >= 0 {
 			n, first := emptyGroups(out.Column(gi))
 			r.pl.noteGroups(int(out.NumRows()), n, func() string { return r.name + batchRow(r.batch-1, first, start+int64(first)) })

@@ -1142,6 +1142,9 @@ func (r *csvReader) Next() bool {
 		if r.pl.src[cGroup] >= 0 {
 			r.pl.noteGroups(res.rows, res.noGroup, func() string { return fmt.Sprintf("%s:%d", r.name, res.noGroupAt) })
 		}
+		if !r.pl.timeChecked && res.firstTime == res.firstTime {
+			r.pl.checkTimeUnit(res.firstTime, fmt.Sprintf("%s:%d", r.name, res.firstLine))
+		}
 		if res.naiveLine > 0 {
 			r.pl.naiveTime(fmt.Sprintf("%s:%d", r.name, res.naiveLine), "times such as "+quoteText(res.naiveText), false)
 		}

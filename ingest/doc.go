@@ -123,8 +123,9 @@
 // Problems that do not stop the reading (same-named columns of which none
 // is read, two names that could both be one canonical column, IAGA-2002
 // variation data in H D Z or H E Z without DECBAS, an unterminated stream
-// accepted on request, times without a UTC offset, rows without a group
-// among rows with one) are warnings: Warnings(r) for a Reader,
+// accepted on request, times without a UTC offset, times in seconds by
+// default that look like Unix milliseconds, microseconds or nanoseconds,
+// rows without a group among rows with one) are warnings: Warnings(r) for a Reader,
 // Samples.Warnings after Collect or ReadSamples, and Inspection.Warnings.
 //
 // Output files are written through WriteFileAtomic: a temporary file in the

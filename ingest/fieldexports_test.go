@@ -698,11 +698,13 @@ func TestCSVSpreadsheetExports(t *testing.T) {
 	})
 }
 
-// TestInspectTimeUnitGuess: Unix times of 2026 (1.77e9 s, POSIX seconds
-// since the Epoch) written in milliseconds, microseconds or nanoseconds
-// and read as seconds would be the years 58000 and beyond: Inspect says
-// which finer unit they look like.
-func TestInspectTimeUnitGuess(t *testing.T) {
+// TestTimeUnitGuess: Unix times of 2026 (1.77e9 s, POSIX seconds since
+// the Epoch) written in milliseconds, microseconds or nanoseconds and read
+// as seconds would be after the year 5000 (1e11 s is in 5138): the readers
+// warn, naming the first such time and the unit the values look like, in
+// CSV and Arrow (an int64 column of milliseconds is a common way to store
+// times), and so does Inspect. A unit given for time is trusted.
+func TestTimeUnitGuess(t *testing.T) {
 	for _, c := range []struct {
 		scale      int64
 		name, unit string
@@ -712,22 +714,60 @@ func TestInspectTimeUnitGuess(t *testing.T) {
 		for i := int64(0); i < 10; i++ {
 			b.WriteString(strconv.FormatInt((unix20260301T1000Z+i)*c.scale, 10) + ",-420,17600,-46900\n")
 		}
+		want := "log.csv:2: column time: times near " + strconv.FormatFloat(float64(unix20260301T1000Z*c.scale), 'g', 4, 64) +
+			" read as seconds would be Unix times after the year 5000; they look like Unix " + c.name + ": give the unit time=" + c.unit
+		s, err := ReadSamples(writeFile(t, "log.csv", b.String()))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if got := warningsWith(s.Warnings, "after the year 5000"); len(got) != 1 || !strings.Contains(got[0], want) {
+			t.Errorf("x%d: warnings %q, want one with %q", c.scale, s.Warnings, want)
+		}
 		in, err := Inspect(writeFile(t, "log.csv", b.String()))
 		if err != nil {
 			t.Fatal(err)
 		}
-		want := "look like Unix " + c.name + " (try units time=" + c.unit + ")"
-		if got := warningsWith(in.Warnings, "look like Unix"); len(got) != 1 || !strings.Contains(got[0], want) {
-			t.Errorf("x%d: warnings %q, want one with %q", c.scale, in.Warnings, want)
+		if got := warningsWith(in.Warnings, "after the year 5000"); len(got) != 1 || !strings.Contains(got[0], want) {
+			t.Errorf("x%d: inspect warnings %q, want one with %q", c.scale, in.Warnings, want)
 		}
-		// Given the unit, no guess.
-		in, err = Inspect(writeFile(t, "log.csv", b.String()), WithUnits("time="+c.unit))
-		if err != nil {
-			t.Fatal(err)
+		// Given the unit (or insisting on seconds), no guess.
+		for _, u := range []string{c.unit, "s"} {
+			s, err = ReadSamples(writeFile(t, "log.csv", b.String()), WithUnits("time="+u))
+			if err != nil {
+				t.Fatal(err)
+			}
+			if got := warningsWith(s.Warnings, "after the year 5000"); len(got) != 0 {
+				t.Errorf("x%d with time=%s: warnings %q", c.scale, u, got)
+			}
 		}
-		if got := warningsWith(in.Warnings, "look like Unix"); len(got) != 0 || in.Time.Start != unix20260301T1000Z {
-			t.Errorf("x%d with the unit: start %v, warnings %q", c.scale, in.Time.Start, got)
+		if s.Time[0] != float64(unix20260301T1000Z*c.scale) {
+			t.Errorf("x%d with time=s: %v", c.scale, s.Time[0])
 		}
+	}
+	// Arrow: an int64 column of milliseconds, the first row after an
+	// empty batch and a batch of NaN times (allowed as missing).
+	sc := arrow.NewSchema([]arrow.Field{
+		{Name: "t", Type: arrow.PrimitiveTypes.Int64, Nullable: true},
+		{Name: "bx", Type: arrow.PrimitiveTypes.Float64},
+		{Name: "by", Type: arrow.PrimitiveTypes.Float64},
+		{Name: "bz", Type: arrow.PrimitiveTypes.Float64},
+	}, nil)
+	fill := func(ts []int64, valid []bool) func(*array.RecordBuilder) {
+		return func(b *array.RecordBuilder) {
+			b.Field(0).(*array.Int64Builder).AppendValues(ts, valid)
+			for k := 1; k < 4; k++ {
+				b.Field(k).(*array.Float64Builder).AppendValues(make([]float64, len(ts)), nil)
+			}
+		}
+	}
+	p := writeArrowBatches(t, "log.arrows", sc, fill(nil, nil), fill([]int64{0}, []bool{false}), fill([]int64{unix20260301T1000Z * 1000, unix20260301T1000Z*1000 + 100}, nil))
+	s, err := ReadSamples(p, WithAllowMissing(true))
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := "log.arrows: batch 2 row 0 (row 1 of the file, counting from 0): column t: times near 1.772e+12 read as seconds would be Unix times after the year 5000; they look like Unix milliseconds"
+	if got := warningsWith(s.Warnings, "after the year 5000"); len(got) != 1 || !strings.Contains(got[0], want) {
+		t.Errorf("arrow: warnings %q, want one with %q", s.Warnings, want)
 	}
 }
 

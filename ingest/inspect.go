@@ -253,18 +253,8 @@ func guessUnits(pl *plan, in *Inspection, mags []float64) []string {
 			}
 		}
 	}
-	// Unix seconds of 1e11 are the year 5138: such times are in a finer
-	// unit.
-	if u := strings.ToLower(pl.unit[cTime]); u == "s" || u == "utc" || u == "gmt" {
-		for _, g := range []struct {
-			lo, hi     float64
-			name, unit string
-		}{{1e11, 1e14, "milliseconds", "ms"}, {1e14, 1e17, "microseconds", "us"}, {1e17, 1e20, "nanoseconds", "ns"}} {
-			if in.Time.Start > g.lo && in.Time.End < g.hi {
-				w = append(w, fmt.Sprintf("time: values near %.4g look like Unix %s (try units time=%s)", in.Time.Start, g.name, g.unit))
-			}
-		}
-	}
+	// Times in a finer unit read as seconds are warned about by the
+	// readers (plan.checkTimeUnit).
 	if in.Time.Backwards > 0 {
 		w = append(w, fmt.Sprintf("time: goes backwards %d times (an error unless allowed)", in.Time.Backwards))
 	}

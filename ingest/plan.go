@@ -41,10 +41,39 @@ type plan struct {
 	// "utc"), so timestamps without an offset are not warned about;
 	// naiveWarned: they have been.
 	timeUTC, naiveWarned bool
+	// timeChecked: the first time has been looked at by checkTimeUnit.
+	timeChecked bool
 	// Rows read, and rows without a group (an empty cell or a null in the
 	// group column), the first of them at groupEmptyAt (see noteGroups).
 	groupRows, groupEmpty int64
 	groupEmptyAt          string
+}
+
+// checkTimeUnit looks at the first time of the input (t, NaN for none in
+// a batch; where says where it is) and warns once when it is read in
+// seconds by default yet is beyond 1e11 s, after the year 5000 as a Unix
+// time: such times are Unix milliseconds, microseconds or nanoseconds
+// read in the wrong unit. A unit given for time is trusted.
+func (p *plan) checkTimeUnit(t float64, where string) {
+	if p.timeChecked || t != t {
+		return
+	}
+	p.timeChecked = true
+	if _, given := p.cfg.units[cTime]; given {
+		return
+	}
+	if u := strings.ToLower(p.unit[cTime]); u != "s" && u != "utc" && u != "gmt" {
+		return
+	}
+	for _, g := range []struct {
+		lo, hi     float64
+		name, unit string
+	}{{1e11, 1e14, "milliseconds", "ms"}, {1e14, 1e17, "microseconds", "us"}, {1e17, 1e20, "nanoseconds", "ns"}} {
+		if math.Abs(t) > g.lo && math.Abs(t) < g.hi {
+			p.warn("%s: column %s: times near %.4g read as seconds would be Unix times after the year 5000; they look like Unix %s: give the unit time=%s (on the command line --unit time=%s)",
+				where, p.header[p.src[cTime]], t, g.name, g.unit, g.unit)
+		}
+	}
 }
 
 // noteGroups counts the rows of a batch and those among them with no
