@@ -29,6 +29,7 @@ type arrowReader struct {
 	cur    arrow.RecordBatch
 	err    error
 	batch  int
+	start  int64 // rows in the batches before the current one
 	last   float64
 	rb     rawBatch
 	done   bool
@@ -65,6 +66,11 @@ func newArrowReaderFor(name, format string, sc *arrow.Schema, cfg *config) (*arr
 	pl, err := newPlan(name, format, header, types, meta, 0, cfg)
 	if err != nil {
 		return nil, err
+	}
+	if ts, ok := types[pl.src[cTime]].(*arrow.TimestampType); ok && ts.TimeZone == "" {
+		// Arrow: a timestamp without a time zone is wall-clock time in
+		// an unstated zone.
+		pl.naiveTime(name, fmt.Sprintf("timestamps of type %s without a time zone", ts), true)
 	}
 	return &arrowReader{name: name, pl: pl, cfg: cfg, last: math.NaN()}, nil
 }
@@ -271,17 +277,23 @@ func (r *arrowReader) Next() bool {
 			return false
 		}
 		if err != nil {
-			r.err = &Error{File: r.name, Batch: r.batch, Row: 0, Msg: "cannot read batch (truncated or corrupt file?)", Err: plainErr{err}}
+			r.err = &Error{File: r.name, Batch: r.batch, Row: 0, FileRow: r.start, Msg: "cannot read batch (truncated or corrupt file?)", Err: plainErr{err}}
 			r.Release()
 			return false
 		}
 		if rec == nil {
+			r.pl.finishGroups()
 			r.Release()
 			return false
 		}
+		start := r.start
 		out, err := r.convert(rec)
 		r.batch++
+		r.start += rec.NumRows()
 		if err != nil {
+			if e, ok := err.(*Error); ok {
+				e.FileRow = start + int64(e.Row)
+			}
 			r.err = err
 			r.Release()
 			return false
@@ -290,11 +302,25 @@ func (r *arrowReader) Next() bool {
 			out.Release()
 			continue
 		}
+		if !r.pl.timeChecked {
+			for i, v := range out.Column(0).(*array.Float64).Float64Values() {
+				if v == v {
+					r.pl.checkTimeUnit(v, r.name+batchRow(r.batch-1, i, start+int64(i)))
+					break
+				}
+			}
+		}
+		if gi := r.groupIndex(); gi >= 0 {
+			n, first := emptyGroups(out.Column(gi))
+			r.pl.noteGroups(int(out.NumRows()), n, func() string { return r.name + batchRow(r.batch-1, first, start+int64(first)) })
+		}
 		if r.pl.orderGroup {
 			if i, prev, g := r.pl.groupBackwards(out); i >= 0 {
 				t := out.Column(0).(*array.Float64).Value(i)
 				out.Release()
-				r.err = rowErr(r.name, r.batch-1, i, r.pl.header[r.pl.src[cTime]], formatSeconds(t), "%s", groupBackwardsMsg(t, prev, g))
+				e := rowErr(r.name, r.batch-1, i, r.pl.header[r.pl.src[cTime]], formatSeconds(t), "%s", groupBackwardsMsg(t, prev, g))
+				e.FileRow = start + int64(i)
+				r.err = e
 				r.Release()
 				return false
 			}
@@ -302,6 +328,16 @@ func (r *arrowReader) Next() bool {
 		r.cur = out
 		return true
 	}
+}
+
+// groupIndex is the index of the group column in an output batch, or -1.
+func (r *arrowReader) groupIndex() int {
+	for i, c := range r.pl.out {
+		if c == cGroup {
+			return i
+		}
+	}
+	return -1
 }
 
 func (r *arrowReader) read() (rec arrow.RecordBatch, err error) {
@@ -406,19 +442,100 @@ func (r *arrowReader) checkTime(t []float64, _ []int) error {
 // convertible reports whether a column of type dt can feed canonical column c.
 func convertible(dt arrow.DataType, c int) bool {
 	switch dt.ID() {
-	case arrow.STRING, arrow.LARGE_STRING:
+	case arrow.STRING, arrow.LARGE_STRING, arrow.STRING_VIEW:
 		return true
-	case arrow.FLOAT64, arrow.FLOAT32, arrow.INT8, arrow.INT16, arrow.INT32, arrow.INT64,
-		arrow.UINT8, arrow.UINT16, arrow.UINT32, arrow.UINT64:
+	case arrow.FLOAT64, arrow.FLOAT32, arrow.FLOAT16, arrow.INT8, arrow.INT16, arrow.INT32, arrow.INT64,
+		arrow.UINT8, arrow.UINT16, arrow.UINT32, arrow.UINT64,
+		arrow.DECIMAL32, arrow.DECIMAL64, arrow.DECIMAL128, arrow.DECIMAL256:
 		return true
 	case arrow.TIMESTAMP:
 		return c == cTime
 	case arrow.NULL:
 		return c != cTime
-	case arrow.DICTIONARY, arrow.BOOL:
+	case arrow.DICTIONARY:
+		// Dictionary-encoded text or numbers (as pandas' categoricals and
+		// other writers leave them) read as their values.
+		return c == cGroup || convertible(dt.(*arrow.DictionaryType).ValueType, c)
+	case arrow.BOOL:
 		return c == cGroup
 	}
 	return false
+}
+
+// cellKind says what cell returned.
+type cellKind int
+
+const (
+	cellNumber    cellKind = iota // v in the column's unit
+	cellTimestamp                 // v in Unix seconds, whatever the unit
+	cellText                      // text, to be parsed
+	cellNull                      // a null (in the column or its dictionary)
+	cellBadType                   // a type that cannot be read
+)
+
+// cell reads row i of arr. Dictionary-encoded columns read through their
+// dictionary; decimals are read from their decimal text, so correctly
+// rounded.
+func cell(arr arrow.Array, i int) (v float64, text string, k cellKind) {
+	if arr.IsNull(i) {
+		return 0, "", cellNull
+	}
+	switch a := arr.(type) {
+	case *array.Float64:
+		return a.Value(i), "", cellNumber
+	case *array.Float32:
+		return float64(a.Value(i)), "", cellNumber
+	case *array.Float16:
+		return float64(a.Value(i).Float32()), "", cellNumber
+	case *array.Int8:
+		return float64(a.Value(i)), "", cellNumber
+	case *array.Int16:
+		return float64(a.Value(i)), "", cellNumber
+	case *array.Int32:
+		return float64(a.Value(i)), "", cellNumber
+	case *array.Int64:
+		return float64(a.Value(i)), "", cellNumber
+	case *array.Uint8:
+		return float64(a.Value(i)), "", cellNumber
+	case *array.Uint16:
+		return float64(a.Value(i)), "", cellNumber
+	case *array.Uint32:
+		return float64(a.Value(i)), "", cellNumber
+	case *array.Uint64:
+		return float64(a.Value(i)), "", cellNumber
+	case *array.Timestamp:
+		return timestampSeconds(int64(a.Value(i)), a.DataType().(*arrow.TimestampType).Unit), "", cellTimestamp
+	case *array.String:
+		return 0, a.Value(i), cellText
+	case *array.LargeString:
+		return 0, a.Value(i), cellText
+	case *array.StringView:
+		return 0, a.Value(i), cellText
+	case *array.Decimal32, *array.Decimal64, *array.Decimal128, *array.Decimal256:
+		return 0, arr.ValueStr(i), cellText
+	case *array.Dictionary:
+		return cell(a.Dictionary(), a.GetValueIndex(i))
+	}
+	return 0, "", cellBadType
+}
+
+// timestampSeconds turns an Arrow timestamp into Unix seconds: whole
+// seconds plus the fraction, each exact or correctly rounded, so the
+// result is the one a text time with the same digits reads as (see
+// unixSeconds) rather than the integer scaled by an inexact 1e-6.
+func timestampSeconds(ts int64, unit arrow.TimeUnit) float64 {
+	var d int64
+	switch unit {
+	case arrow.Second:
+		return float64(ts)
+	case arrow.Millisecond:
+		d = 1e3
+	case arrow.Microsecond:
+		d = 1e6
+	default:
+		d = 1e9
+	}
+	return float64(ts/d) + float64(ts%d)/float64(d)
 }
 
 // floats converts an Arrow column into canonical float64 values.
@@ -428,61 +545,39 @@ func (r *arrowReader) floats(dst []float64, arr arrow.Array, c int) ([]float64, 
 	scale := pl.scale[c]
 	n := arr.Len()
 	for i := 0; i < n; i++ {
-		var v float64
-		var text string
-		if arr.IsNull(i) {
+		v, text, k := cell(arr, i)
+		s := scale
+		switch k {
+		case cellNull:
 			if !r.cfg.allowMissing {
 				return nil, rowErr(r.name, r.batch, i, col, "null", "null value; missing values are not allowed by default")
 			}
 			dst = append(dst, math.NaN())
 			continue
-		}
-		s := scale
-		switch a := arr.(type) {
-		case *array.Float64:
-			v = a.Value(i)
-		case *array.Float32:
-			v = float64(a.Value(i))
-		case *array.Int8:
-			v = float64(a.Value(i))
-		case *array.Int16:
-			v = float64(a.Value(i))
-		case *array.Int32:
-			v = float64(a.Value(i))
-		case *array.Int64:
-			v = float64(a.Value(i))
-		case *array.Uint8:
-			v = float64(a.Value(i))
-		case *array.Uint16:
-			v = float64(a.Value(i))
-		case *array.Uint32:
-			v = float64(a.Value(i))
-		case *array.Uint64:
-			v = float64(a.Value(i))
-		case *array.Timestamp:
-			unit := a.DataType().(*arrow.TimestampType).Unit
-			v, s = float64(a.Value(i))*unit.Multiplier().Seconds(), 1
-		case *array.String:
-			text = a.Value(i)
-		case *array.LargeString:
-			text = a.Value(i)
-		default:
+		case cellBadType:
 			return nil, rowErr(r.name, r.batch, i, col, "", "type %s cannot be read as %s", arr.DataType(), canonNames[c])
-		}
-		switch arr.(type) {
-		case *array.String, *array.LargeString:
+		case cellTimestamp:
+			s = 1
+		case cellText:
 			var ok bool
 			b := []byte(text)
 			t := trimField(b)
 			v, ok = parseNumber(t)
 			if !ok && c == cTime {
-				if v, ok = parseTimestamp(t); ok {
+				var zoned bool
+				if v, zoned, ok = parseTimestampZone(t); ok {
 					s = 1
+					if !zoned {
+						pl.naiveTime(r.name+batchRow(r.batch, i, r.start+int64(i)), "times such as "+quoteText(string(t)), false)
+					}
 				}
 			}
 			if !ok && !(isMissingText(t) && r.cfg.allowMissing) {
 				if isMissingText(t) {
 					return nil, rowErr(r.name, r.batch, i, col, text, "missing value %s; missing values are not allowed by default", quoteText(text))
+				}
+				if c == cTime {
+					return nil, rowErr(r.name, r.batch, i, col, text, "%s is not a number or an RFC 3339 time%s", quoteText(text), timeHint(t))
 				}
 				return nil, rowErr(r.name, r.batch, i, col, text, "%s is not a number", quoteText(text))
 			}
@@ -497,7 +592,7 @@ func (r *arrowReader) floats(dst []float64, arr arrow.Array, c int) ([]float64, 
 			return nil, rowErr(r.name, r.batch, i, col, strconv.FormatFloat(v, 'g', -1, 64), "value is infinite")
 		}
 		if s != 1 {
-			v *= s
+			v = scaled(v, s)
 		}
 		dst = append(dst, v)
 	}

@@ -8,6 +8,7 @@ import (
 	"math"
 	"strings"
 	"sync"
+	"unicode/utf8"
 
 	"github.com/apache/arrow-go/v18/arrow"
 	"github.com/apache/arrow-go/v18/arrow/array"
@@ -52,9 +53,13 @@ type csvReader struct {
 	done     chan struct{}
 	wg       sync.WaitGroup
 	stopped  bool
-	cur      arrow.RecordBatch
-	err      error
-	last     float64
+	// nulAt is the line of a run of NUL bytes without a line end that
+	// split dropped (0: none); written by split, read after it ends.
+	nulAt   int
+	nulLine int // first line of NUL bytes alone skipped by the parsers
+	cur     arrow.RecordBatch
+	err     error
+	last    float64
 }
 
 const (
@@ -83,6 +88,12 @@ type csvResult struct {
 	firstLine int
 	lastTime  float64
 	lines     []int // line of each row, for TimeOrderedPerGroup
+	naiveLine int   // line of the first timestamp without a UTC offset, 0 if none
+	naiveText string
+	rows      int // rows in rec
+	noGroup   int // rows with an empty group cell
+	noGroupAt int // line of the first of them
+	nulLine   int // first line of NUL bytes alone, skipped; 0 if none
 }
 
 func (r *csvReader) plan() *plan                    { return r.pl }
@@ -94,7 +105,14 @@ func (r *csvReader) Err() error                     { return r.err }
 // name is used in messages; closer (may be nil) is closed by Release.
 func newCSVReader(name string, rd io.Reader, cfg *config) (*csvReader, error) {
 	closer, _ := rd.(io.Closer)
-	r := &csvReader{name: name, closer: closer, cfg: cfg, br: bufio.NewReaderSize(rd, 64<<10), last: math.NaN()}
+	br := bufio.NewReaderSize(rd, 64<<10)
+	if head, _ := br.Peek(4096); bytes.IndexByte(head, '\r') >= 0 && bytes.IndexByte(head, '\n') < 0 {
+		// Lines end in a bare CR, as classic Mac OS text and the
+		// "Macintosh" CSV of some spreadsheets do: read each CR as a
+		// line end.
+		br = bufio.NewReaderSize(crLines{br}, 64<<10)
+	}
+	r := &csvReader{name: name, closer: closer, cfg: cfg, br: br, last: math.NaN()}
 	meta := map[string]string{}
 	lineNo := 0
 	var raw []byte   // the physical line that starts the header record
@@ -117,9 +135,22 @@ func newCSVReader(name string, rd io.Reader, cfg *config) (*csvReader, error) {
 		}
 		lineNo++
 		if lineNo == 1 {
+			if bytes.HasPrefix(raw, []byte("\xff\xfe")) || bytes.HasPrefix(raw, []byte("\xfe\xff")) {
+				return nil, fileErr(name, nil, "the file is UTF-16 text (it starts with the byte order mark %X), not UTF-8: save or export it again as UTF-8 text (in a spreadsheet, \"CSV UTF-8\")", raw[:2])
+			}
 			raw = bytes.TrimPrefix(raw, []byte("\xef\xbb\xbf")) // UTF-8 byte order mark
+			if d, ok := sepLine(raw); ok {
+				// A spreadsheet's "sep=;" line names the delimiter.
+				if cfg.delim == 0 {
+					cfg.delim, cfg.whitespace = d, d == ' '
+				}
+				continue
+			}
 		}
 		ln := bytes.TrimRight(raw, "\r\n")
+		if bytes.IndexByte(ln, 0) >= 0 {
+			return nil, lineErr(name, lineNo, "", "", "the line holds NUL bytes: the file is not text, or is UTF-16 text without a byte order mark (save or export it again as UTF-8 text)")
+		}
 		if len(bytes.TrimSpace(ln)) == 0 {
 			continue
 		}
@@ -236,6 +267,46 @@ func newCSVReader(name string, rd io.Reader, cfg *config) (*csvReader, error) {
 	}
 	r.start(carry, startLine)
 	return r, nil
+}
+
+// crLines turns every CR into LF, for text whose lines end in a bare CR.
+type crLines struct{ r io.Reader }
+
+func (c crLines) Read(p []byte) (int, error) {
+	n, err := c.r.Read(p)
+	for i, b := range p[:n] {
+		if b == '\r' {
+			p[i] = '\n'
+		}
+	}
+	return n, err
+}
+
+// emptyRecord reports whether a line holds only delimiters and blanks, as
+// a spreadsheet writes the empty rows below a table (";;;;"): a record
+// without a single value, read as a blank line.
+func emptyRecord(ln []byte, delim byte) bool {
+	for _, b := range ln {
+		if b != delim && b != ' ' && b != '\t' {
+			return false
+		}
+	}
+	return true
+}
+
+// sepLine reports whether the first line of a file is a spreadsheet's
+// delimiter line, "sep=" and one character ("sep=;"), and returns that
+// character.
+func sepLine(raw []byte) (byte, bool) {
+	ln := bytes.TrimRight(raw, "\r\n")
+	if len(ln) != 5 || !bytes.EqualFold(ln[:4], []byte("sep=")) {
+		return 0, false
+	}
+	d := ln[4]
+	if d == '"' || d >= 128 {
+		return 0, false
+	}
+	return d, true
 }
 
 // readLine reads one line including its newline, however long.
@@ -406,9 +477,19 @@ func (r *csvReader) openQuoteErr(rec []byte, open, line int, atEOF bool) *Error 
 
 // headerName turns a header field into a column name: blanks trimmed,
 // quotes removed, and a line break inside a quoted name (a spreadsheet's
-// wrapped "Bx\n(nT)") read as one space.
+// wrapped "Bx\n(nT)") read as one space. A name that is not valid UTF-8
+// is read as Latin-1 (ISO 8859-1), as older spreadsheets save "Bx (µT)",
+// so that its unit is recognised and a mapping can name it.
 func headerName(f []byte) string {
-	s := strings.TrimSpace(string(unquote(f)))
+	f = unquote(f)
+	if !utf8.Valid(f) {
+		r := make([]rune, len(f))
+		for i, b := range f {
+			r[i] = rune(b)
+		}
+		f = []byte(string(r))
+	}
+	s := strings.TrimSpace(string(f))
 	if strings.ContainsAny(s, "\r\n") {
 		s = strings.Join(strings.Fields(strings.NewReplacer("\r", " ", "\n", " ").Replace(s)), " ")
 	}
@@ -640,11 +721,28 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch, plain bool) 
 		if len(ln) == 0 {
 			continue
 		}
+		if len(ln) == 1 && ln[0] == 0x1a {
+			// SUB, the end-of-file mark of CP/M and MS-DOS text, as
+			// old tools still append it.
+			continue
+		}
+		if ln[0] == 0 && len(bytes.Trim(ln, "\x00")) == 0 {
+			// NUL bytes alone: the unwritten end of a logger's
+			// preallocated file, or a damaged stretch. Skipped, and
+			// warned about (see Next).
+			if rb.nulLine == 0 {
+				rb.nulLine = line
+			}
+			continue
+		}
 		if ln[0] == ' ' || ln[0] == '\t' || (len(comment) > 0 && ln[0] == comment[0]) {
 			t := bytes.TrimSpace(ln)
 			if len(t) == 0 || (len(comment) > 0 && bytes.HasPrefix(t, comment)) {
 				continue
 			}
+		}
+		if !r.ws && (ln[0] == r.delim || ln[0] == ' ' || ln[0] == '\t') && emptyRecord(ln, r.delim) {
+			continue
 		}
 		if r.fast && r.fastLine(ln, rb) {
 			rb.line[rb.n] = line
@@ -676,8 +774,12 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch, plain bool) 
 			}
 			scale := u.scale
 			if !ok && u.c == cTime {
-				if v, ok = parseTimestamp(t); ok {
+				var zoned bool
+				if v, zoned, ok = parseTimestampZone(t); ok {
 					scale = 1
+					if !zoned && rb.naiveLine == 0 {
+						rb.naiveLine, rb.naiveText = fieldLine(ln, fields[u.src], line), string(t)
+					}
 				}
 			}
 			if !ok || !finite(v) {
@@ -693,12 +795,15 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch, plain bool) 
 				} else if !ok {
 					what := "is not a number"
 					if u.c == cTime {
-						what = "is not a number or an RFC 3339 time"
+						what = "is not a number or an RFC 3339 time" + timeHint(t)
 					}
 					if r.decComma {
 						what += " (the file is read with decimal commas, so a point is not a decimal point)"
 					} else if r.delim != ',' && decimalCommaText(t) {
 						what += " (a decimal comma? read the file with decimal commas: --decimal-comma, ingest.WithDecimalComma)"
+					}
+					if _, err := unitScale(kindOf(u.c), string(t)); err == nil && len(t) > 0 {
+						what += " (a row of units under the header? make it a comment line, starting with the comment prefix, or delete it)"
 					}
 					return lineErr(r.name, fieldLine(ln, fields[u.src], line), pl.header[u.src], string(t), "%s %s", quoteText(string(t)), what)
 				} else {
@@ -706,7 +811,7 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch, plain bool) 
 				}
 			}
 			if scale != 1 {
-				v *= scale
+				v = scaled(v, scale)
 			}
 			rb.f[u.c][rb.n] = v
 		}
@@ -771,7 +876,7 @@ func (r *csvReader) fastLine(ln []byte, rb *rawBatch) bool {
 		if !ok || (end < n && ln[end] != d) {
 			return false
 		}
-		rb.f[op][row] = v * r.opScale[k] // exact when the scale is 1
+		rb.f[op][row] = scaled(v, r.opScale[k])
 		p = end + 1
 	}
 	if p < n {
@@ -870,6 +975,18 @@ func (r *csvReader) split(carry []byte, line int) {
 			return
 		}
 		cut, open, plain := r.lastRecordEnd(data)
+		if cut < 0 && len(data) > maxLineBytes && data[0] == 0 && len(bytes.Trim(data, "\x00")) == 0 {
+			// A run of NUL bytes longer than a line may be (a logger's
+			// preallocated file): dropped as it comes but for its last
+			// byte, so that the line is judged as any other when it
+			// ends (skipped if NULs alone, refused if data follow).
+			if r.nulAt == 0 {
+				r.nulAt = line
+			}
+			carry = append(carry[:0], 0)
+			putChunk(buf)
+			continue
+		}
 		if cut < 0 {
 			if len(data) > maxLineBytes {
 				if open >= 0 {
@@ -916,7 +1033,7 @@ func (r *csvReader) parseJob(j csvJob, rb *rawBatch) csvResult {
 	rb.reset(pl)
 	err := r.parseChunk(j.data, j.line, rb, j.plain)
 	if err != nil || rb.n == 0 {
-		res := csvResult{err: err, firstTime: math.NaN(), lastTime: math.NaN()}
+		res := csvResult{err: err, firstTime: math.NaN(), lastTime: math.NaN(), nulLine: rb.nulLine}
 		if err != nil && r.pl.orderAll {
 			// A step back in time on a row before the bad one comes
 			// first in the file, whatever the chunking: report that.
@@ -935,9 +1052,20 @@ func (r *csvReader) parseJob(j csvJob, rb *rawBatch) csvResult {
 			return csvResult{err: backwardsErr(r.name, rb.line[i], pl.header[pl.src[cTime]], t[i], lastTime(t[:i], math.NaN()))}
 		}
 	}
-	res := csvResult{rec: pl.record(r.cfg.mem, rb), lastTime: lastTime(t, math.NaN())}
+	res := csvResult{rec: pl.record(r.cfg.mem, rb), lastTime: lastTime(t, math.NaN()), naiveLine: rb.naiveLine, naiveText: rb.naiveText, nulLine: rb.nulLine}
 	if pl.orderGroup {
 		res.lines = append([]int(nil), rb.line[:rb.n]...)
+	}
+	res.rows = rb.n
+	if pl.src[cGroup] >= 0 {
+		for i, g := range rb.group {
+			if g == "" {
+				if res.noGroup == 0 {
+					res.noGroupAt = rb.line[i]
+				}
+				res.noGroup++
+			}
+		}
 	}
 	res.firstTime, res.firstLine = firstTime(t, rb.line)
 	return res
@@ -969,9 +1097,21 @@ func (r *csvReader) Next() bool {
 	for {
 		ch, ok := <-r.pending
 		if !ok {
+			r.pl.finishGroups()
+			// split has ended (it closed pending): r.nulAt is settled.
+			at := r.nulLine
+			if r.nulAt > 0 && (at == 0 || r.nulAt < at) {
+				at = r.nulAt
+			}
+			if at > 0 {
+				r.pl.warn("%s:%d: lines of nothing but NUL bytes skipped, the first here: the unwritten end of a logger's preallocated file, or a damaged stretch of the file (rows may be missing there)", r.name, at)
+			}
 			return false
 		}
 		res := <-ch
+		if res.nulLine > 0 && r.nulLine == 0 {
+			r.nulLine = res.nulLine
+		}
 		if res.err != nil {
 			r.err = res.err
 			if r.pl.orderAll && res.firstLine > 0 && res.firstTime < r.last {
@@ -998,6 +1138,15 @@ func (r *csvReader) Next() bool {
 				r.stop()
 				return false
 			}
+		}
+		if r.pl.src[cGroup] >= 0 {
+			r.pl.noteGroups(res.rows, res.noGroup, func() string { return fmt.Sprintf("%s:%d", r.name, res.noGroupAt) })
+		}
+		if !r.pl.timeChecked && res.firstTime == res.firstTime {
+			r.pl.checkTimeUnit(res.firstTime, fmt.Sprintf("%s:%d", r.name, res.firstLine))
+		}
+		if res.naiveLine > 0 {
+			r.pl.naiveTime(fmt.Sprintf("%s:%d", r.name, res.naiveLine), "times such as "+quoteText(res.naiveText), false)
 		}
 		if res.lastTime == res.lastTime {
 			r.last = res.lastTime

@@ -19,6 +19,25 @@
 // from its name. Readers hand out arrow.RecordBatch values through
 // Next/RecordBatch/Err and hold only a few batches in memory at a time.
 //
+// CSV as spreadsheets export it is read as well: a UTF-8 byte order mark,
+// CRLF or bare CR line ends, a first line "sep=;" naming the delimiter,
+// decimal commas, rows of delimiters alone (the empty rows below a table,
+// skipped like blank lines) and header names saved in Latin-1 ("Bx (µT)").
+// Lines of nothing but NUL bytes (the unwritten end of a logger's
+// preallocated file, however long) are skipped with a warning.
+// UTF-16 text is refused, with a request for UTF-8. Arrow and Parquet
+// columns may be integers, floats (16, 32 or 64 bits), decimals, text
+// (also large and view strings), dictionary-encoded values of these, and
+// for time timestamps in any unit and zone.
+//
+// Times are seconds, or timestamps: Arrow timestamps count from the Unix
+// epoch in UTC; text times are RFC 3339 ("2026-04-21T09:40:00.5+01:00",
+// "Z", or " UTC"). A text time without its UTC offset, or an Arrow
+// timestamp type without a time zone, is read as UTC with a warning, since
+// local wall-clock times would be off by the zone's offset; a time column
+// whose unit is UTC (from its name, "Time (UTC)", "time_utc", or given)
+// says they are UTC and is not warned about.
+//
 // # Conversions
 //
 // Field units: 1 uT = 1e3 nT, 1 mT = 1e6 nT, 1 G = 1e5 nT, 1 T = 1e9 nT
@@ -65,16 +84,22 @@
 // NaN in the record batches and in Samples; Collect counts the rows with a
 // missing field value in Meta["missing_rows"]. In other formats an empty
 // cell, a NaN or an Arrow null in a numeric column is an error unless
-// WithAllowMissing is given, in which case it is NaN.
+// WithAllowMissing is given, in which case it is NaN. A row whose group
+// cell is empty or null has no group: its group is "" in every format
+// (Inspect counts it as missing), and when other rows do have a group a
+// warning says how many have none, since a fit by group would take them as
+// one more group.
 //
 // # Errors
 //
 // Every error starts with "ingest:" and names the file and the line (CSV,
 // IAGA-2002; physical lines, so a CSV record spanning several lines is named
 // by the line where the offending field starts) or the batch and row (Arrow,
-// Parquet), the column and the offending text, for example
+// Parquet; both counted from 0, and beyond the first batch the row counted
+// through the file too), the column and the offending text, for example
 //
 //	ingest: log.csv:58: column bz: "1oo.0" is not a number
+//	ingest: log.parquet: batch 2 row 18928 (row 150000 of the file, counting from 0): column by: null value; ...
 //
 // Two columns (or schema fields) of one name, where a mapping would read
 // one of them, are an error naming the header line and both column
@@ -87,14 +112,20 @@
 // streams with the marker. An Arrow IPC file or a Parquet file cut short
 // (without its closing magic bytes) is an error saying so. In
 // IAGA-2002 files a day of year that disagrees with the date, or a value
-// after the four elements, is an error.
+// after the four elements, is an error. IAGA-2002 files joined end to end
+// (one day's file after another's, for a base station across midnight UTC)
+// are read as one series when each later header gives the same IAGA code,
+// data type, data interval type, DECBAS and column line as the first;
+// otherwise the later header is an error naming its line.
 //
 // # Warnings
 //
 // Problems that do not stop the reading (same-named columns of which none
 // is read, two names that could both be one canonical column, IAGA-2002
 // variation data in H D Z or H E Z without DECBAS, an unterminated stream
-// accepted on request) are warnings: Warnings(r) for a Reader,
+// accepted on request, times without a UTC offset, times in seconds by
+// default that look like Unix milliseconds, microseconds or nanoseconds,
+// rows without a group among rows with one) are warnings: Warnings(r) for a Reader,
 // Samples.Warnings after Collect or ReadSamples, and Inspection.Warnings.
 //
 // Output files are written through WriteFileAtomic: a temporary file in the

@@ -10,17 +10,23 @@ import (
 //
 //	ingest: FILE:LINE: column COL: MESSAGE
 //	ingest: FILE: batch B row R: column COL: MESSAGE
+//	ingest: FILE: batch B row R (row N of the file, counting from 0): column COL: MESSAGE
 //
 // with the parts that do not apply left out.
 type Error struct {
-	File   string
-	Line   int    // 1-based line, 0 when not applicable
-	Batch  int    // 0-based record batch, -1 when not applicable
-	Row    int    // 0-based row within Batch
-	Column string // "" when the problem is not in one column
-	Text   string // the offending text, if any
-	Msg    string
-	Err    error // underlying cause, if any
+	File  string
+	Line  int // 1-based line, 0 when not applicable
+	Batch int // 0-based record batch, -1 when not applicable
+	Row   int // 0-based row within Batch
+	// FileRow is the 0-based row counted from the start of the file
+	// (Arrow, Parquet): shown beside Batch and Row when earlier batches
+	// hold rows, since a Parquet reader's batches are not the file's row
+	// groups and other tools count rows through the whole file.
+	FileRow int64
+	Column  string // "" when the problem is not in one column
+	Text    string // the offending text, if any
+	Msg     string
+	Err     error // underlying cause, if any
 }
 
 func (e *Error) Error() string {
@@ -31,7 +37,7 @@ func (e *Error) Error() string {
 		fmt.Fprintf(&b, ":%d", e.Line)
 	}
 	if e.Batch >= 0 {
-		fmt.Fprintf(&b, ": batch %d row %d", e.Batch, e.Row)
+		b.WriteString(batchRow(e.Batch, e.Row, e.FileRow))
 	}
 	if e.Column != "" {
 		b.WriteString(": column ")
@@ -47,6 +53,18 @@ func (e *Error) Error() string {
 }
 
 func (e *Error) Unwrap() error { return e.Err }
+
+// batchRow words the place of row row of record batch batch, fileRow
+// being that row counted from the start of the file: ": batch 2 row 4
+// (row 9 of the file, counting from 0)", without the part in parentheses
+// when no earlier batch holds rows.
+func batchRow(batch, row int, fileRow int64) string {
+	s := fmt.Sprintf(": batch %d row %d", batch, row)
+	if fileRow > int64(row) {
+		s += fmt.Sprintf(" (row %d of the file, counting from 0)", fileRow)
+	}
+	return s
+}
 
 func fileErr(file string, err error, format string, a ...any) *Error {
 	return &Error{File: file, Batch: -1, Msg: fmt.Sprintf(format, a...), Err: err}

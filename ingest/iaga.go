@@ -59,6 +59,28 @@ type iagaReader struct {
 	// not (set from the header in newIAGAReader).
 	baseline   float64
 	bsin, bcos float64 // its sine and cosine
+	// first is the first header's column line and the fields that must
+	// be the same in the header of a file joined on after it.
+	first iagaHeader
+}
+
+// iagaHeader is what one IAGA-2002 header says about the data below it,
+// as far as files joined end to end (one day's file after another's) must
+// agree on it to be read as one series.
+type iagaHeader struct {
+	line    int      // line of the "DATE TIME" column line
+	columns []string // names on the "DATE TIME" column line
+	fields  map[string]string
+}
+
+// iagaJoinKeys are the header fields that files joined end to end must
+// share: the same observatory, data type and sampling, and for variation
+// data the same baseline declination (DECBAS).
+var iagaJoinKeys = []struct{ key, label string }{
+	{"iaga_code", "IAGA CODE"},
+	{"data_type", "Data Type"},
+	{"data_interval_type", "Data Interval Type"},
+	{"decbas", "# DECBAS"},
 }
 
 func (r *iagaReader) plan() *plan                    { return r.pl }
@@ -127,6 +149,12 @@ func newIAGAReader(name string, rd io.Reader, cfg *config) (*iagaReader, error) 
 	}
 	if len(columns) < 7 {
 		return nil, lineErr(name, r.line, "", strings.Join(columns, " "), "IAGA-2002 column line needs DATE TIME DOY and four elements, found %d names", len(columns))
+	}
+	r.first = iagaHeader{line: r.line, columns: columns, fields: map[string]string{}}
+	for _, k := range iagaJoinKeys {
+		if v, ok := meta[MetaPrefix+k.key]; ok {
+			r.first.fields[k.key] = v
+		}
 	}
 	// Short keys as well, for callers that want the essentials.
 	for short, long := range map[string]string{"station": "iaga_code", "latitude": "geodetic_latitude", "longitude": "geodetic_longitude"} {
@@ -274,8 +302,19 @@ func (r *iagaReader) Next() bool {
 			break
 		}
 		r.line++
-		ln := bytes.TrimRight(raw, "\r\n")
+		// SUB (0x1A), the end-of-file mark of CP/M and MS-DOS text, as
+		// old tools still append it: at the start of a line it ends the
+		// text of a file (joined files have it before the next header).
+		ln := bytes.TrimLeft(bytes.TrimRight(raw, "\r\n"), "\x1a")
 		if len(bytes.TrimSpace(ln)) == 0 {
+			continue
+		}
+		if iagaFormatLine(ln) {
+			// The header of a file joined on after this one.
+			if e := r.joined(); e != nil {
+				r.err = e
+				break
+			}
 			continue
 		}
 		if e := r.parseRow(ln, rb, hasF); e != nil {
@@ -292,6 +331,66 @@ func (r *iagaReader) Next() bool {
 	}
 	r.cur = r.pl.record(r.cfg.mem, rb)
 	return true
+}
+
+// iagaFormatLine reports whether a line is the first line of an IAGA-2002
+// header, " Format                 IAGA-2002 ... |".
+func iagaFormatLine(ln []byte) bool {
+	t := bytes.TrimSpace(ln)
+	return bytes.HasPrefix(t, []byte("Format")) && bytes.Contains(bytes.ToUpper(t), []byte("IAGA-2002"))
+}
+
+// joined reads the header of a file joined on after the one being read
+// (its " Format" line just read), up to its column line, and checks that
+// it describes the same series: the same observatory, data type,
+// sampling, baseline declination and columns. The data that follow are
+// then read on; time must still run forward across the join.
+func (r *iagaReader) joined() error {
+	start := r.line
+	fields := map[string]string{}
+	for {
+		raw, err := readLine(r.br)
+		if len(raw) == 0 && err != nil {
+			if err != io.EOF {
+				return fileErr(r.name, err, "read error near line %d", r.line)
+			}
+			return lineErr(r.name, start, "", "", "IAGA-2002 header (of a file joined on here?) without a DATE TIME DOY column line")
+		}
+		r.line++
+		ln := strings.TrimRight(string(raw), "\r\n")
+		t := strings.TrimSpace(ln)
+		switch {
+		case t == "":
+			continue
+		case strings.HasPrefix(t, "DATE"):
+			columns := strings.Fields(strings.TrimSuffix(t, "|"))
+			if strings.Join(columns, " ") != strings.Join(r.first.columns, " ") {
+				return lineErr(r.name, r.line, "", t, "the IAGA-2002 header from line %d (a file joined on here?) has the columns %q, the first header (line %d) %q: files joined end to end must hold the same elements",
+					start, strings.Join(columns, " "), r.first.line, strings.Join(r.first.columns, " "))
+			}
+			for _, k := range iagaJoinKeys {
+				if fields[k.key] != r.first.fields[k.key] {
+					return lineErr(r.name, start, k.label, fields[k.key], "this IAGA-2002 header (of a file joined on here?) gives %s %q where the first header gives %q: files joined end to end must come from one observatory with the same data type, sampling and baseline",
+						k.label, fields[k.key], r.first.fields[k.key])
+				}
+			}
+			return nil
+		case strings.HasPrefix(t, "#"):
+			c := strings.TrimSpace(strings.TrimPrefix(t, "#"))
+			if f := strings.Fields(c); len(f) >= 2 && strings.EqualFold(f[0], "DECBAS") {
+				fields["decbas"] = f[1]
+			}
+		default:
+			if len(ln) <= 24 {
+				return lineErr(r.name, r.line, "", ln, "not an IAGA-2002 header line: %s", quoteText(ln))
+			}
+			label, value := strings.TrimSpace(ln[:24]), strings.TrimSpace(strings.TrimSuffix(strings.TrimSpace(ln[24:]), "|"))
+			if label == "" || value == "" {
+				return lineErr(r.name, r.line, "", ln, "not an IAGA-2002 header line: %s", quoteText(ln))
+			}
+			fields[iagaKey(label)] = value
+		}
+	}
 }
 
 func (r *iagaReader) parseRow(ln []byte, rb *rawBatch, hasF bool) error {

@@ -128,8 +128,8 @@ func Inspect(path string, opts ...Option) (*Inspection, error) {
 		cols := make([][]float64, n)
 		for i, c := range pl.out {
 			if c == cGroup {
-				g := rec.Column(i)
-				missing[i] += g.NullN()
+				n, _ := emptyGroups(rec.Column(i)) // nulls and empty cells
+				missing[i] += n
 				continue
 			}
 			cols[i] = rec.Column(i).(*array.Float64).Float64Values()
@@ -253,9 +253,8 @@ func guessUnits(pl *plan, in *Inspection, mags []float64) []string {
 			}
 		}
 	}
-	if in.Time.Start > 1e11 && in.Time.End < 1e14 && pl.unit[cTime] == "s" {
-		w = append(w, fmt.Sprintf("time: values near %.4g look like Unix milliseconds (try units time=ms)", in.Time.Start))
-	}
+	// Times in a finer unit read as seconds are warned about by the
+	// readers (plan.checkTimeUnit).
 	if in.Time.Backwards > 0 {
 		w = append(w, fmt.Sprintf("time: goes backwards %d times (an error unless allowed)", in.Time.Backwards))
 	}

@@ -107,32 +107,77 @@ func parseFastAt(b []byte, i int) (v float64, end int, ok bool) {
 	return f, i, true
 }
 
-var timeLayouts = []string{
-	time.RFC3339Nano,
-	"2006-01-02T15:04:05.999999999",
-	"2006-01-02 15:04:05.999999999Z07:00",
-	"2006-01-02 15:04:05.999999999",
-	"2006-01-02T15:04Z07:00",
-	"2006-01-02 15:04",
-	"2006-01-02",
+// timeLayouts are the timestamp forms read; zoned says whether the form
+// carries a UTC offset (or "Z").
+var timeLayouts = []struct {
+	layout string
+	zoned  bool
+}{
+	{time.RFC3339Nano, true},
+	{"2006-01-02T15:04:05.999999999", false},
+	{"2006-01-02 15:04:05.999999999Z07:00", true},
+	{"2006-01-02 15:04:05.999999999", false},
+	{"2006-01-02T15:04Z07:00", true},
+	{"2006-01-02 15:04", false},
+	{"2006-01-02", false},
 }
 
 // parseTimestamp parses an RFC 3339 timestamp (or the same with a space for
 // the T, or without a zone, taken as UTC) into Unix seconds.
 func parseTimestamp(b []byte) (float64, bool) {
+	v, _, ok := parseTimestampZone(b)
+	return v, ok
+}
+
+// parseTimestampZone is parseTimestamp that also tells whether the text
+// gives its zone (a UTC offset, "Z" or " UTC"); one without is read as UTC.
+func parseTimestampZone(b []byte) (v float64, zoned, ok bool) {
 	if len(b) < 10 || b[4] != '-' {
-		return 0, false
+		return 0, false, false
 	}
 	s := string(b)
+	utc := false
 	if bytes.HasSuffix(b, []byte(" UTC")) {
-		s = s[:len(s)-4] + "Z"
+		s, utc = s[:len(s)-4]+"Z", true
 	}
 	for _, l := range timeLayouts {
-		if t, err := time.Parse(l, s); err == nil {
-			return unixSeconds(t), true
+		if t, err := time.Parse(l.layout, s); err == nil {
+			return unixSeconds(t), l.zoned || utc, true
 		}
 	}
-	return 0, false
+	return 0, false, false
+}
+
+// timeHint says what a time that is neither a number nor an RFC 3339
+// time looks like, for the message refusing it: a time of day without its
+// date (a logger's separate Date and Time columns), or a date written with
+// slashes (a spreadsheet's locale). "" when it looks like neither.
+func timeHint(b []byte) string {
+	clock := func(b []byte) bool { // h:mm, hh:mm:ss, hh:mm:ss.fff
+		n := 0
+		for _, part := range bytes.Split(b, []byte(":")) {
+			n++
+			if len(part) == 0 {
+				return false
+			}
+			for i, c := range part {
+				if (c < '0' || c > '9') && !(n == 3 && i >= 2 && (c == '.' || c == ',')) {
+					return false
+				}
+			}
+		}
+		return n == 2 || n == 3
+	}
+	if clock(b) {
+		return " (a time of day without its date? time needs the date too: join a separate date column to it, as in 2026-04-21T08:40:00Z)"
+	}
+	date, _, _ := bytes.Cut(b, []byte(" ")) // 21/04/2026, 4/21/2026 9:40, 21.04.2026 09:40:00
+	for _, sep := range []byte{'/', '.'} {
+		if len(date) >= 6 && bytes.Count(date, []byte{sep}) == 2 && len(bytes.Trim(date, "0123456789"+string(sep))) == 0 {
+			return " (a date in a local order, day and month as a spreadsheet writes them? write times as RFC 3339, as in 2026-04-21T08:40:00Z)"
+		}
+	}
+	return ""
 }
 
 func unixSeconds(t time.Time) float64 {

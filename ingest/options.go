@@ -137,7 +137,9 @@ func WithColumns(pairs ...string) Option {
 
 // WithUnits sets the unit of canonical columns, each pair written
 // "column=unit" ("bx=uT", "time=ms"). Field units: nT, uT, mT, G, T, pT;
-// lengths: m, cm, mm, km, ft; angles: deg, rad; time: s, ms, us, ns.
+// lengths: m, cm, mm, km, ft; angles: deg, rad; time: s, ms, us, ns, or
+// UTC: seconds, and timestamps without a UTC offset are UTC (not warned
+// about; see the package documentation).
 // Without it a unit suffix in the header ("Bx_uT", "Bx (uT)", "Bx[uT]") is
 // used, else the canonical unit.
 func WithUnits(pairs ...string) Option {

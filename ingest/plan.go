@@ -36,6 +36,103 @@ type plan struct {
 	// may not within a group (WithTimeOrder), checked by groupOrder.
 	orderAll, orderGroup bool
 	groupLast            map[string]*float64 // last time of each group
+	// timeUTC: the time column says its timestamps are UTC (its unit, from
+	// the header as in "Time (UTC)" or given, is UTC, or it is named
+	// "utc"), so timestamps without an offset are not warned about;
+	// naiveWarned: they have been.
+	timeUTC, naiveWarned bool
+	// timeChecked: the first time has been looked at by checkTimeUnit.
+	timeChecked bool
+	// Rows read, and rows without a group (an empty cell or a null in the
+	// group column), the first of them at groupEmptyAt (see noteGroups).
+	groupRows, groupEmpty int64
+	groupEmptyAt          string
+}
+
+// checkTimeUnit looks at the first time of the input (t, NaN for none in
+// a batch; where says where it is) and warns once when it is read in
+// seconds by default yet is beyond 1e11 s, after the year 5000 as a Unix
+// time: such times are Unix milliseconds, microseconds or nanoseconds
+// read in the wrong unit. A unit given for time is trusted.
+func (p *plan) checkTimeUnit(t float64, where string) {
+	if p.timeChecked || t != t {
+		return
+	}
+	p.timeChecked = true
+	if _, given := p.cfg.units[cTime]; given {
+		return
+	}
+	if u := strings.ToLower(p.unit[cTime]); u != "s" && u != "utc" && u != "gmt" {
+		return
+	}
+	for _, g := range []struct {
+		lo, hi     float64
+		name, unit string
+	}{{1e11, 1e14, "milliseconds", "ms"}, {1e14, 1e17, "microseconds", "us"}, {1e17, 1e20, "nanoseconds", "ns"}} {
+		if math.Abs(t) > g.lo && math.Abs(t) < g.hi {
+			p.warn("%s: column %s: times near %.4g read as seconds would be Unix times after the year 5000; they look like Unix %s: give the unit time=%s (on the command line --unit time=%s)",
+				where, p.header[p.src[cTime]], t, g.name, g.unit, g.unit)
+		}
+	}
+}
+
+// noteGroups counts the rows of a batch and those among them with no
+// group (empty text or null); where tells the place of the first of
+// those, for the warning.
+func (p *plan) noteGroups(rows, empty int, where func() string) {
+	p.groupRows += int64(rows)
+	if empty > 0 && p.groupEmpty == 0 {
+		p.groupEmptyAt = where()
+	}
+	p.groupEmpty += int64(empty)
+}
+
+// finishGroups warns, at the end of the input, when some rows have a
+// group and some have none: a fit by group would take the rows without one
+// (between traverses, a sensor id not logged) as one more group of their
+// own. A group column that is empty throughout groups nothing and is not
+// warned about.
+func (p *plan) finishGroups() {
+	if p.src[cGroup] < 0 || p.groupEmpty == 0 || p.groupEmpty == p.groupRows {
+		return
+	}
+	p.warn("%s: column %s: rows without a group (an empty cell or a null): %d of %d, the first here; a fit by group takes them as one more group of their own (fill in their group, or remove those rows)",
+		p.groupEmptyAt, p.header[p.src[cGroup]], p.groupEmpty, p.groupRows)
+	p.groupEmpty = 0 // warned once
+}
+
+// emptyGroups counts the rows of a canonical group column with no group
+// (a null or empty text) and returns the first such row, or -1.
+func emptyGroups(g arrow.Array) (n, first int) {
+	first = -1
+	s, _ := g.(*array.String)
+	for i := 0; i < g.Len(); i++ {
+		if g.IsNull(i) || (s != nil && s.Value(i) == "") {
+			if first < 0 {
+				first = i
+			}
+			n++
+		}
+	}
+	return n, first
+}
+
+// naiveTime warns, once per input, that the time column holds timestamps
+// without a UTC offset, which are read as UTC. where is "FILE:LINE",
+// "FILE: batch B row R" or "FILE"; what names them ("times such as
+// \"2026-04-21T09:40:00\"", "timestamps of type timestamp[ms] without a
+// time zone").
+func (p *plan) naiveTime(where, what string, typed bool) {
+	if p.timeUTC || p.naiveWarned {
+		return
+	}
+	p.naiveWarned = true
+	fix := "write the offset into the times (2026-04-21T09:40:00+01:00)"
+	if typed {
+		fix = "store them as timestamps with a time zone"
+	}
+	p.warn("%s: column %s: %s give no UTC offset and are read as UTC; if they are local times, every time is off by the zone's offset (a base-station correction then pairs the wrong readings): %s, or, if they are UTC, say so with the unit UTC (on the command line --unit time=UTC)",
+		where, p.header[p.src[cTime]], what, fix)
 }
 
 // warn records a warning (see Warnings).
@@ -216,6 +313,10 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 			return nil, &Error{File: file, Batch: -1, Column: canonNames[c], Msg: err.Error()}
 		}
 		p.unit[c], p.scale[c] = u, s
+	}
+	if p.src[cTime] >= 0 {
+		u := strings.ToLower(p.unit[cTime])
+		p.timeUTC = u == "utc" || u == "gmt" || strings.EqualFold(strings.TrimSpace(header[p.src[cTime]]), "utc")
 	}
 	if types != nil {
 		for c := 0; c < nCanon; c++ {
@@ -477,6 +578,11 @@ type rawBatch struct {
 	f     [nCanon][]float64
 	group []string
 	line  []int // source line of each row (text formats)
+	// naiveLine is the line of the first timestamp without a UTC offset
+	// (0: none), naiveText its text.
+	naiveLine int
+	naiveText string
+	nulLine   int // first line of NUL bytes alone, skipped (text formats)
 }
 
 func (rb *rawBatch) reset(p *plan) {
@@ -486,6 +592,7 @@ func (rb *rawBatch) reset(p *plan) {
 	}
 	rb.group = rb.group[:0]
 	rb.line = rb.line[:0]
+	rb.naiveLine, rb.naiveText, rb.nulLine = 0, "", 0
 }
 
 // transform applies the frame and position conversions in place.

@@ -111,6 +111,12 @@ func Collect(r Reader) (*Samples, error) {
 			col := rec.Column(i)
 			if c == cGroup {
 				for j := 0; j < col.Len(); j++ {
+					if col.IsNull(j) {
+						// No group, as an empty cell; ValueStr would
+						// give the text "(null)".
+						s.Group = append(s.Group, "")
+						continue
+					}
 					// Clone: Arrow strings alias the batch's buffer.
 					s.Group = append(s.Group, strings.Clone(col.ValueStr(j)))
 				}

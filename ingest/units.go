@@ -60,8 +60,12 @@ func unitScale(k kind, u string) (float64, error) {
 			return 1e-6, nil
 		case "ns":
 			return 1e-9, nil
+		case "utc", "gmt":
+			// Seconds, and timestamps written without a UTC offset
+			// are UTC ("Time (UTC)"): said, so not warned about.
+			return 1, nil
 		}
-		return 0, fmt.Errorf("unknown time unit %q (want s, ms, us or ns)", u)
+		return 0, fmt.Errorf("unknown time unit %q (want s, ms, us, ns, or UTC for timestamps in UTC)", u)
 	case kindTemp:
 		switch s {
 		case "C", "degC", "°C", "c":
@@ -97,4 +101,26 @@ func splitUnit(name string) (base, unit string) {
 		return strings.TrimSpace(n[:i]), n[i+1:]
 	}
 	return n, ""
+}
+
+// scaled converts v by the unit factor s. A factor that is a negative power
+// of ten (ms, us, ns, mm, cm, pT) divides by its inverse, which is exact,
+// so that an exact count of the small unit reads as the correctly rounded
+// value in the canonical one: 1772359200100 ms as 1772359200.1 s, the
+// value the same decimal written in seconds reads as, where multiplying by
+// the inexact 1e-3 gives 1772359200.1000001.
+func scaled(v, s float64) float64 {
+	switch s {
+	case 1:
+		return v
+	case 1e-2:
+		return v / 1e2
+	case 1e-3:
+		return v / 1e3
+	case 1e-6:
+		return v / 1e6
+	case 1e-9:
+		return v / 1e9
+	}
+	return v * s
 }
