@@ -96,7 +96,7 @@ func (p *plan) finishGroups() {
 	if p.src[cGroup] < 0 || p.groupEmpty == 0 || p.groupEmpty == p.groupRows {
 		return
 	}
-	p.warn("%s: column %s: rows without a group (an empty cell or a null): %d of %d, the first here; a fit by group takes them as one more group of their own (fill in their group, or remove those rows)",
+	p.warn("%s: column %s: rows without a group (an empty cell or a null): %d of %d, the first here; a fit by group leaves them out (fill in their group to fit them)",
 		p.groupEmptyAt, p.header[p.src[cGroup]], p.groupEmpty, p.groupRows)
 	p.groupEmpty = 0 // warned once
 }

@@ -547,11 +547,25 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 		}
 		return g
 	}
+	// With --group-by, readings with an empty group belong to no group:
+	// fitted as one more "group" they made a false conductor at chainage
+	// 0 and shifted the route. They are left out, and counted.
+	ungrouped := 0
+	defer func() {
+		if ungrouped > 0 {
+			sv.warnings = append(sv.warnings, fmt.Sprintf("%s: %d %s with an empty %s left out (no group to fit them in)",
+				s.Source, ungrouped, map[bool]string{true: "AC windows", false: "readings"}[sv.ac], o.groupBy))
+		}
+	}()
 	if !sv.ac {
 		for i := range s.Len() {
 			key := ""
 			if s.Group != nil {
 				key = s.Group[i]
+			}
+			if o.groupBy != "" && key == "" {
+				ungrouped++
+				continue
 			}
 			g := get(key)
 			g.points = append(g.points, [3]float64{s.X[i], s.Y[i], s.Z[i]})
@@ -580,6 +594,10 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 		sv.doc.Signal = report.Signal{Mode: report.SignalAC, FrequencyHz: res.Freq, WindowS: win, NuisanceHz: res.Nuisance}
 	}
 	for _, w := range res.Windows {
+		if o.groupBy != "" && w.Group == "" {
+			ungrouped++
+			continue
+		}
 		g := get(w.Group)
 		g.points = append(g.points, w.Pos)
 		g.phasors = append(g.phasors, w.B)
