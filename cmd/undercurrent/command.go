@@ -166,6 +166,14 @@ func run(ctx context.Context, args []string, stdout, stderr io.Writer) int {
 			return interruptStatus(ctx)
 		}
 		fmt.Fprintf(stderr, "undercurrent %s: %s\n", name, cleanMessage(name, fs.Args(), err.Error()))
+		var we *warnedError
+		if errors.As(err, &we) {
+			// What was noticed before the failure, often its explanation,
+			// after the error (whose line stays the first).
+			for _, w := range we.warnings {
+				fmt.Fprintf(stderr, "warning: %s\n", w)
+			}
+		}
 		var ue *usageError
 		if errors.As(err, &ue) {
 			fmt.Fprintf(stderr, "run \"undercurrent help %s\" for usage\n", name)
@@ -174,6 +182,30 @@ func run(ctx context.Context, args []string, stdout, stderr io.Writer) int {
 		return 1
 	}
 	return 0
+}
+
+// warnedError is an error that follows warnings gathered before it (a
+// time column read as seconds that looked like milliseconds, then "above
+// the Nyquist frequency"): the command prints them after the error.
+type warnedError struct {
+	err      error
+	warnings []string
+}
+
+func (e *warnedError) Error() string { return e.err.Error() }
+func (e *warnedError) Unwrap() error { return e.err }
+
+// withWarnings returns err carrying warnings (err itself when there are
+// none or err is nil).
+func withWarnings(err error, warnings ...[]string) error {
+	var all []string
+	for _, w := range warnings {
+		all = append(all, w...)
+	}
+	if err == nil || len(all) == 0 {
+		return err
+	}
+	return &warnedError{err: err, warnings: all}
 }
 
 // signalCause is why the context ended when a signal arrived (see main).

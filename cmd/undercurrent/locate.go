@@ -378,7 +378,7 @@ func runLocate(ctx context.Context, o *locateOptions, logs []string, progress io
 // readSurvey reads the logs, applies the corrections, demodulates and
 // splits the readings into groups. It stops with ctx's error between
 // stages (and between batches while reading) once ctx is done.
-func readSurvey(ctx context.Context, o *locateOptions, logs []string) (*survey, error) {
+func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey, err error) {
 	doc := &report.Document{
 		SchemaVersion: report.SchemaVersion,
 		Tool:          report.Tool{Name: "undercurrent", Version: toolVersion()},
@@ -388,6 +388,7 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (*survey, 
 		Findings:      []report.Finding{},
 	}
 	sv := &survey{doc: doc, ac: o.freq > 0}
+	defer func() { err = withWarnings(err, sv.alerts, sv.warnings) }()
 	var cal *calibrate.Calibration
 	if o.calibration != "" {
 		var err error
@@ -429,10 +430,10 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (*survey, 
 	for _, path := range logs {
 		// A coil log's voltages are not checked against the Earth's field.
 		s, warns, err := o.read.readLog(ctx, path, opts, !o.coil.on())
+		sv.warnings = append(sv.warnings, warns...)
 		if err != nil {
 			return nil, err
 		}
-		sv.warnings = append(sv.warnings, warns...)
 		if o.coil.on() {
 			o.coil.toVolts(s)
 			if w := coilSteadyWarning(path, s); w != "" {

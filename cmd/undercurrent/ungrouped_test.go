@@ -1,6 +1,7 @@
 package main
 
 import (
+	"fmt"
 	"os"
 	"path/filepath"
 	"strings"
@@ -67,5 +68,29 @@ func TestLocateUngroupedLeftOut(t *testing.T) {
 	}
 	if len(doc.Findings) != len(clean.Findings) {
 		t.Errorf("%d findings with blanks, %d without", len(doc.Findings), len(clean.Findings))
+	}
+}
+
+// TestLocateFailureKeepsWarnings: warnings gathered before a failure are
+// printed after its error (whose line stays first), since they are often
+// its explanation: a time column in milliseconds read as seconds (a sample
+// every 0.5 s, not every 0.5 ms) fails with "at or above the Nyquist
+// frequency", and the reader's warning that the times look like
+// milliseconds must follow.
+func TestLocateFailureKeepsWarnings(t *testing.T) {
+	var b strings.Builder
+	b.WriteString("time,x,y,z,bx,by,bz\n")
+	for i := range 400 {
+		fmt.Fprintf(&b, "%.1f,%g,0,0,-150,19200,-45100\n", 1772359200000+0.5*float64(i), 0.01*float64(i))
+	}
+	log := filepath.Join(t.TempDir(), "ms.csv")
+	if err := os.WriteFile(log, []byte(b.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	code, _, errOut := cli(t, "locate", "--freq", "50", log)
+	w := strings.Index(errOut, "warning: ")
+	e := strings.Index(errOut, "undercurrent locate: ")
+	if code != 1 || e != 0 || w < e || !strings.Contains(errOut[w:], "milliseconds") || !strings.Contains(errOut[e:w], "Nyquist") {
+		t.Errorf("exit %d, stderr:\n%s\nwant the Nyquist error, then the milliseconds warning", code, errOut)
 	}
 }
