@@ -19,6 +19,13 @@ type BaseSettings struct {
 	// MaxGap is the longest stretch of base record, s, interpolated across
 	// without a warning. Zero means five base sample intervals.
 	MaxGap float64
+	// MaxHold is the longest time, s, by which a rover row may lie before
+	// or after the base record and still be corrected, with the base's
+	// nearest value held (and a warning). A row further out is an error:
+	// the diurnal variation moves by nanotesla in minutes, and a value held
+	// that long is no correction. Zero means MaxGap; a negative value holds
+	// the nearest value for any time.
+	MaxHold float64
 }
 
 // BaseReport says what the base-station correction did.
@@ -123,6 +130,11 @@ func BaseCorrectColumns(roverName string, rt []float64, rb [3][]float64, baseNam
 		maxGap = 5 * median(d, nil)
 	}
 
+	maxHold := bs.MaxHold
+	if maxHold == 0 {
+		maxHold = maxGap
+	}
+
 	rlo, rhi := math.Inf(1), math.Inf(-1)
 	for i, t := range rt {
 		if math.IsNaN(t) || math.IsInf(t, 0) {
@@ -138,6 +150,19 @@ func BaseCorrectColumns(roverName string, rt []float64, rb [3][]float64, baseNam
 	if rhi < blo || rlo > bhi {
 		return nil, fmt.Errorf("calibrate: base correction: base record %s (%s to %s) does not overlap rover log %s (%s to %s)",
 			baseName, fmtTime(blo), fmtTime(bhi), roverName, fmtTime(rlo), fmtTime(rhi))
+	}
+	if maxHold >= 0 && (rlo < blo-maxHold || rhi > bhi+maxHold) {
+		far, first := 0, -1
+		for i, t := range rt {
+			if t < blo-maxHold || t > bhi+maxHold {
+				far++
+				if first < 0 {
+					first = i
+				}
+			}
+		}
+		return nil, fmt.Errorf("calibrate: base correction: base record %s (%s to %s) does not cover the rover log %s (%s to %s): %d of %d rows, the first at row %d (%s), lie more than %g s outside it, where the base's nearest value held is no correction; give a base record that covers the survey, or allow the hold (locate --base-hold SECONDS)",
+			baseName, fmtTime(blo), fmtTime(bhi), roverName, fmtTime(rlo), fmtTime(rhi), far, len(rt), first, fmtTime(rt[first]), maxHold)
 	}
 
 	var lo, hi [3]float64

@@ -69,8 +69,9 @@ func TestBaseCorrectBoulderSelf(t *testing.T) {
 
 func TestBaseCorrectBoulderPartial(t *testing.T) {
 	// A rover spanning the evening of 1 November into 2 November, against a
-	// base of 1 November only: corrected where covered, held and warned
-	// beyond.
+	// base of 1 November only: refused by default (the rows an hour past the
+	// base's end would get a value held for an hour); with the hold allowed,
+	// corrected where covered, held and warned beyond.
 	base, err := ingest.ReadSamples(ingesttest.IAGAFile(t, "bou20141101vmin.min"))
 	if err != nil {
 		t.Fatal(err)
@@ -89,7 +90,21 @@ func TestBaseCorrectBoulderPartial(t *testing.T) {
 	rover.Bx = make([]float64, len(rover.Time))
 	rover.By = make([]float64, len(rover.Time))
 	rover.Bz = make([]float64, len(rover.Time))
-	rep, err := BaseCorrect(rover, base, &BaseSettings{RefMode: "first"})
+	if _, err := BaseCorrect(rover, base, &BaseSettings{RefMode: "first"}); err == nil ||
+		!strings.Contains(err.Error(), "56 of 120 rows, the first at row 64 (2014-11-02T00:04:30Z), lie more than 300 s outside it") ||
+		!strings.Contains(err.Error(), "--base-hold") {
+		t.Errorf("err = %v, want the rows beyond five base intervals (300 s) refused", err)
+	}
+	if rover.Bz[0] != 0 {
+		t.Error("a refused correction changed the log")
+	}
+	if _, err := BaseCorrect(rover, base, &BaseSettings{RefMode: "first", MaxHold: 3700}); err != nil {
+		t.Errorf("an hour's hold allowed: %v", err)
+	}
+	for i := range rover.Bz {
+		rover.Bx[i], rover.By[i], rover.Bz[i] = 0, 0, 0
+	}
+	rep, err := BaseCorrect(rover, base, &BaseSettings{RefMode: "first", MaxHold: -1})
 	if err != nil {
 		t.Fatal(err)
 	}

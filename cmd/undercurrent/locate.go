@@ -30,6 +30,7 @@ import (
 type locateOptions struct {
 	calibration  string
 	base         string
+	baseHold     float64
 	freq         float64
 	window       float64
 	mainsText    string
@@ -75,6 +76,7 @@ var resultFiles = []string{report.FileJSON, report.FileCSV, report.FileGeoJSON, 
 func (o *locateOptions) setFlags(fs *pflag.FlagSet) {
 	fs.StringVar(&o.calibration, "calibration", "", "apply the sensor calibration in `CAL.json` (from undercurrent calibrate)")
 	fs.StringVar(&o.base, "base", "", "subtract the diurnal variation recorded by the base station log `BASE` (any log format, IAGA-2002 too)")
+	fs.Float64Var(&o.baseHold, "base-hold", 0, "correct survey readings up to `S` seconds before or after the base log with its nearest value held (default: five base sample intervals; readings further out are refused, since a held value is no correction)")
 	fs.Float64Var(&o.freq, "freq", 0, "demodulate the AC field at `HZ` (50, 60, 16.7, 512...) and fit RMS currents with phase; the field's own frequency is then estimated from the log, and if it is off (a grid at 50.1 Hz) the log is demodulated at the estimate, with a warning saying so (too far off, it refuses and names the frequency found); without --freq the DC field is fitted (no frequency is estimated and AC is not looked for)")
 	fs.StringVar(&o.mainsText, "mains", "50,60", "with --freq at another frequency than the mains (an injected tracer, 16.7 Hz), fit the mains `HZ` (50, 60, both as 50,60, or none) and their odd harmonics alongside in every window, so that a strong mains field changing as the sensor walks does not leak into the signal as noise")
 	fs.Float64Var(&o.window, "window", 0, "AC demodulation window, `S` seconds (default: ten cycles at 50 or 60 Hz; at any other frequency ten cycles or 0.1 s, whichever is longer, rounded up to a multiple of 0.1 s, so that the window holds whole cycles of the 50 or 60 Hz mains and they do not leak in)")
@@ -110,6 +112,12 @@ func (o *locateOptions) check(fs *pflag.FlagSet) error {
 			return usageErrorf("--count %q: want 1, 2, 3, 4 or auto", o.count)
 		}
 		o.nCount = n
+	}
+	if o.baseHold < 0 || math.IsNaN(o.baseHold) {
+		return usageErrorf("--base-hold %g: want a time in seconds >= 0", o.baseHold)
+	}
+	if o.baseHold != 0 && o.base == "" {
+		return usageErrorf("--base-hold needs --base")
 	}
 	if o.freq < 0 || math.IsNaN(o.freq) || math.IsInf(o.freq, 0) {
 		return usageErrorf("--freq %g: want a positive frequency in Hz", o.freq)
@@ -490,7 +498,7 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			}
 		}
 		if base != nil {
-			rep, err := calibrate.BaseCorrect(s, base, nil)
+			rep, err := calibrate.BaseCorrect(s, base, &calibrate.BaseSettings{MaxHold: o.baseHold})
 			if err != nil {
 				return nil, err
 			}
