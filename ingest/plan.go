@@ -292,8 +292,8 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 		if len(cfg.mappingText) > 0 {
 			tried = strings.Join(cfg.mappingText, ", ")
 		}
-		return nil, fileErr(file, nil, "no column for %s (columns found: %s; mapping tried: %s; give one with a column mapping such as bx=NAME, on the command line --column bx=NAME)",
-			strings.Join(missing, ", "), strings.Join(header, ", "), tried)
+		return nil, fileErr(file, nil, "no column for %s (columns found: %s; mapping tried: %s; give one with a column mapping such as %s=NAME, on the command line --column %s=NAME)",
+			strings.Join(missing, ", "), strings.Join(header, ", "), tried, missing[0], missing[0])
 	}
 
 	// Units.

@@ -48,7 +48,7 @@ const fieldUnits = "nT, pT, uT, mT, T, G or mG"
 
 func (f *readFlags) add(fs *pflag.FlagSet) {
 	fs.StringSliceVar(&f.columns, "column", nil, "map canonical columns to the file's names: `CANON=NAME`, e.g. bx=Bx_uT,time=t_s,group=traverse (repeatable)")
-	fs.StringSliceVar(&f.units, "unit", nil, "units of columns: `CANON=UNIT`, e.g. bx=uT,time=ms (field nT/pT/uT/mT/T/G/mG, or V/mV/uV/nV for induction coils with locate --coil; length m/cm/mm/km/ft; repeatable)")
+	fs.StringSliceVar(&f.units, "unit", nil, "units of columns: `CANON=UNIT`, e.g. bx=uT,time=ms (field nT/pT/uT/mT/T/G/mG, or V/mV/uV/nV for induction coils with locate --coil; length m/cm/mm/km/ft; time s/ms/us/ns, or UTC for timestamps without a zone that are UTC; repeatable)")
 	fs.StringSliceVar(&f.columnsOld, "columns", nil, "same as --column")
 	fs.StringSliceVar(&f.unitsOld, "units", nil, "same as --unit")
 	_ = fs.MarkHidden("columns")
@@ -483,9 +483,12 @@ func inspectCtx(ctx context.Context, path string, opts ...ingest.Option) (*inges
 func cliWording(s string) string {
 	s = strings.ReplaceAll(s, "(try units ", "(try --unit ")
 	s = strings.ReplaceAll(s, "(try columns ", "(try --column ")
-	s = strings.ReplaceAll(s, "with a column mapping such as bx=NAME, on the command line --column bx=NAME", "with --column bx=NAME")
+	s = mappingHint.ReplaceAllString(s, "with --column $1=NAME")
 	return singleBatch.ReplaceAllString(s, "${1}1 record batch$2")
 }
+
+// mappingHint matches ingest's advice to map a missing column, naming it.
+var mappingHint = regexp.MustCompile(`with a column mapping such as ([a-z]+)=NAME, on the command line --column [a-z]+=NAME`)
 
 // singleBatch matches "1 record batches" (and not "11 record batches").
 var singleBatch = regexp.MustCompile(`(^|[^0-9.])1 record batches($|[^A-Za-z])`)

@@ -237,8 +237,15 @@ func TestMessagesWording(t *testing.T) {
 	if err := os.WriteFile(nobz, []byte("time,x,y,z,bx,by,Bvert\n0,0,0,0,1,2,3\n"), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	if code, _, errOut := cli(t, "locate", nobz); code != 1 || !strings.Contains(errOut, "give one with --column bx=NAME") {
+	if code, _, errOut := cli(t, "locate", nobz); code != 1 || !strings.Contains(errOut, "give one with --column bz=NAME") {
 		t.Errorf("missing column: exit %d, %q: want --column named", code, errOut)
+	}
+	notime := filepath.Join(dir, "notime.csv")
+	if err := os.WriteFile(notime, []byte("stamp,x,y,z,bx,by,bz\n0,0,0,0,1,2,3\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if code, _, errOut := cli(t, "locate", notime); code != 1 || !strings.Contains(errOut, "no column for time") || !strings.Contains(errOut, "give one with --column time=NAME") {
+		t.Errorf("missing time column: exit %d, %q: want --column time=NAME suggested", code, errOut)
 	}
 	if code, _, errOut := cli(t, "convert", nobz); code != 2 || !strings.Contains(errOut, "got 1 argument\n") {
 		t.Errorf("one argument: exit %d, %q", code, errOut)
