@@ -571,8 +571,8 @@ func (f *fitter) report(c *candidate, scores []ModelScore) (*Result, error) {
 			r.Weights[i] = w * w
 		}
 	}
-	if !r.Status.Converged() {
-		r.Notes = append(r.Notes, "the fit did not converge: "+r.Status.String())
+	if n := statusNote(r.Status); n != "" {
+		r.Notes = append(r.Notes, n)
 	}
 	if f.prob.Sigma > 0 && su.dof > 0 {
 		// A chi-square far above its degrees of freedom says the model or the noise
@@ -585,4 +585,19 @@ func (f *fitter) report(c *candidate, scores []ModelScore) (*Result, error) {
 		r.Notes = append(r.Notes, "robust (Huber) weights: uncertainties are approximate")
 	}
 	return r, nil
+}
+
+// statusNote is the note a fit's stopping status calls for, or "" for a
+// fit that converged. A stalled fit, where no step reduces the sum of
+// squares further in floating point, is at its minimum to machine
+// precision and its estimates are used like those of any converged fit
+// (report.Group.OK), so its note does not call it unconverged.
+func statusNote(s Status) string {
+	switch {
+	case s == Stalled:
+		return "the fit converged to machine precision: no step reduces the sum of squares further in floating point"
+	case !s.Converged():
+		return "the fit did not converge: " + s.String()
+	}
+	return ""
 }

@@ -10,6 +10,8 @@ import (
 	"strings"
 
 	"gonum.org/v1/plot/vg"
+
+	"undercurrent/inverse/route"
 )
 
 // MaxProfilePlots is the number of groups whose measured and fitted field
@@ -254,26 +256,17 @@ func valueText(x Value) string {
 	return s
 }
 
-// maxPMDecimals is the most decimals pm shows: a sigma that would need
-// more is shown as an upper bound.
-const maxPMDecimals = 4
-
 // pm formats a value and its one-sigma uncertainty for a crew to read: the
 // sigma to two significant digits and the value to the same decimal place
-// ("112.7 ± 0.18", "41.9046 ± 0.0046"), in plain decimals. A sigma that
-// would need more than maxPMDecimals decimals shows as a bound ("1.160 ±
-// <0.001"); a zero, infinite or missing sigma shows the value alone.
+// ("112.7 ± 0.18", "41.9046 ± 0.0046", "-0.000332 ± 0.000013"), in plain
+// decimals, however small the sigma (route.PlusMinus, which the findings'
+// messages use too); a zero, infinite or missing sigma shows the value
+// alone.
 func pm(v, sigma float64) string {
 	if !(sigma > 0) || math.IsInf(sigma, 0) {
 		return num(v)
 	}
-	dec := max(0, 1-int(math.Floor(math.Log10(sigma))))
-	if dec > maxPMDecimals {
-		return fix(v, maxPMDecimals-1) + " ± <" + fix(math.Pow(10, 1-maxPMDecimals), maxPMDecimals-1)
-	}
-	// Rounding can carry the sigma to one more digit (0.0996 -> 0.10):
-	// keep the value's decimals with the sigma's.
-	return fix(v, dec) + " ± " + fix(sigma, dec)
+	return route.PlusMinus(v, sigma)
 }
 
 // PlusMinus formats a value and its one-sigma uncertainty as the crew
@@ -282,17 +275,12 @@ func pm(v, sigma float64) string {
 func PlusMinus(v, sigma float64) string { return pm(v, sigma) }
 
 // sigText formats a sigma alone to two significant digits in plain
-// decimals (no exponent), or as a bound ("<0.001") when that would need
-// more than maxPMDecimals decimals.
+// decimals (route.SigmaText: "0.030", "0.00046"), however small.
 func sigText(sigma float64) string {
 	if !(sigma > 0) || math.IsInf(sigma, 0) {
 		return num(sigma)
 	}
-	dec := max(0, 1-int(math.Floor(math.Log10(sigma))))
-	if dec > maxPMDecimals {
-		return "<" + fix(math.Pow(10, 1-maxPMDecimals), maxPMDecimals-1)
-	}
-	return fix(sigma, dec)
+	return route.SigmaText(sigma)
 }
 
 // num formats a value with about three significant digits, in plain
@@ -472,8 +460,9 @@ func fitNotes(d *Document) []string {
 	return out
 }
 
-// en formats a plan position as "E 12.3 N -4.5", without negative zeros.
-func en(p [3]float64) string { return "E " + fix(p[0], 1) + " N " + fix(p[1], 1) }
+// en formats a local plan position east and north, in metres, without
+// negative zeros: "E 59.9 m, N -4.5 m".
+func en(p [3]float64) string { return "E " + fix(p[0], 1) + " m, N " + fix(p[1], 1) + " m" }
 
 // unresolved reports whether the readings leave quantity q of s undetermined.
 func unresolved(s *Source, q string) bool {
@@ -546,8 +535,12 @@ func (v *view) summarise() {
 				}
 				depSig = append(depSig, s.DepthSigma)
 			}
-			line := fmt.Sprintf("Depth %s is %s to %s m (shallowest at chainage %.0f m)",
-				shortRef(d), num(lo.Depth), num(hi.Depth), lo.Chainage)
+			var line string
+			if rng, one := span(lo.Depth, hi.Depth); one {
+				line = fmt.Sprintf("Depth %s is %s m at every station", shortRef(d), rng)
+			} else {
+				line = fmt.Sprintf("Depth %s is %s m (shallowest at chainage %.0f m)", shortRef(d), rng, lo.Chainage)
+			}
 			if c, ok := d.cover(lo.Depth); ok {
 				line += fmt.Sprintf("; least cover %s m", pm(c, d.coverSigma(lo.DepthSigma)))
 			}
@@ -603,6 +596,11 @@ func (v *view) summarise() {
 	}
 }
 
+// ConductorSummary says in a sentence, as the crew report's summary does,
+// where further conductor t runs beside conductor 1, what it carries and
+// which way, and how deep it lies.
+func ConductorSummary(d *Document, t *Track) string { return trackHeadline(d, t) }
+
 // trackHeadline says in a sentence where a further conductor runs and
 // what it carries.
 func trackHeadline(d *Document, t *Track) string {
@@ -622,8 +620,91 @@ func trackHeadline(d *Document, t *Track) string {
 		a, b := used[0], used[len(used)-1]
 		line += fmt.Sprintf("; current %s A at %s and %s A at %s",
 			pm(a.Current, a.CurrentSigma), a.Key, pm(b.Current, b.CurrentSigma), b.Key)
+		switch flowAgainst(d, used) {
+		case 1:
+			line += ", flowing the opposite way to conductor 1 (a return path, for example)"
+		case -1:
+			line += ", flowing the same way as conductor 1"
+		}
+		lo, hi := used[0].Depth, used[0].Depth
+		for _, s := range used {
+			lo, hi = math.Min(lo, s.Depth), math.Max(hi, s.Depth)
+		}
+		rng, _ := span(lo, hi)
+		line += fmt.Sprintf("; depth %s %s m", shortRef(d), rng)
 	}
 	return line + "."
+}
+
+// flowAgainst tells whether a further conductor's DC current, over its
+// used stations, flows against conductor 1's in the same groups (1), with
+// it (-1), or neither can be told (0: AC, where the phases say it, no group
+// in common where both currents are over two sigma, or such groups
+// disagree). Each current is signed along its station's Direction, so the
+// flows are compared as vectors, not by sign.
+func flowAgainst(d *Document, used []Station) int {
+	if d.Route == nil {
+		return 0
+	}
+	main := map[string]Station{}
+	for _, s := range d.Route.Stations {
+		if s.Used {
+			main[s.Key] = s
+		}
+	}
+	against, with := 0, 0
+	for _, s := range used {
+		m, ok := main[s.Key]
+		if !ok || s.Phase != nil || m.Phase != nil ||
+			math.Abs(s.Current) <= 2*s.CurrentSigma || math.Abs(m.Current) <= 2*m.CurrentSigma {
+			continue
+		}
+		dot := 0.0
+		for k := range 2 {
+			dot += s.Current * s.Direction[k] * m.Current * m.Direction[k]
+		}
+		switch {
+		case dot < 0:
+			against++
+		case dot > 0:
+			with++
+		}
+	}
+	switch {
+	case against > 0 && with == 0:
+		return 1
+	case with > 0 && against == 0:
+		return -1
+	}
+	return 0
+}
+
+// span writes the range lo to hi with both ends to the same decimals (those
+// num gives the end of larger magnitude): "0.70 to 1.34", and one value,
+// with one true, when the ends agree at that precision: "1.20".
+func span(lo, hi float64) (s string, one bool) {
+	dec := numDecimals(math.Max(math.Abs(lo), math.Abs(hi)))
+	a, b := fix(lo, dec), fix(hi, dec)
+	if a == b {
+		return a, true
+	}
+	return a + " to " + b, false
+}
+
+// numDecimals is the number of decimals num writes a value of magnitude
+// a with.
+func numDecimals(a float64) int {
+	switch {
+	case a == 0 || a >= 100:
+		return 0
+	case a >= 10:
+		return 1
+	case a >= 1:
+		return 2
+	case a >= 0.01:
+		return 3
+	}
+	return 1 - int(math.Floor(math.Log10(a)))
 }
 
 // soundGroups counts the groups whose fit converged with no problem.

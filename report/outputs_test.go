@@ -326,7 +326,22 @@ func TestPM(t *testing.T) {
 		{-25.01842, 0.0043, "-25.0184 ± 0.0043"},
 		{87.08412, 0.0068, "87.0841 ± 0.0068"},
 		{1.80123, 0.0026, "1.8012 ± 0.0026"},
-		{1.1601234, 9.4e-5, "1.160 ± <0.001"},
+		// A sigma under a millimetre or a milliampere keeps its digits
+		// (never "<0.001" for a sigma that is known): the reviewed
+		// Kestrel Moor trend, -0.000332 ± 0.0000133 A/m in the JSON, is a
+		// 25-sigma decay that "0.000 ± <0.001" hid.
+		{1.1601234, 9.4e-5, "1.160123 ± 0.000094"},
+		{-0.000332, 0.0000133, "-0.000332 ± 0.000013"},
+		{0.0200412, 0.00031, "0.02004 ± 0.00031"},
+		// JCGM 100:2008 (GUM) section 7.2.2 and NIST TN 1297 section 7
+		// write their example mass, 100.02147 g with a combined standard
+		// uncertainty of 0.35 mg, as (100.02147 ± 0.00035) g.
+		{100.02147, 0.00035, "100.02147 ± 0.00035"},
+		// A sigma that rounds up to the next power of ten keeps two
+		// significant digits, not three (0.0996 -> 0.10, not 0.100).
+		{2.3456, 0.0996, "2.35 ± 0.10"},
+		// Under 1e-9 of the unit the sigma takes an exponent, still known.
+		{1.16953, 1.2e-12, "1.169530000 ± 1.2e-12"},
 		{112.71, 0.18, "112.71 ± 0.18"},
 		{1234.4, 56, "1234 ± 56"},
 		{0.403, 0.0200, "0.403 ± 0.020"},
@@ -339,7 +354,7 @@ func TestPM(t *testing.T) {
 	for _, tc := range []struct {
 		s    float64
 		want string
-	}{{0.0076, "0.0076"}, {9.4e-5, "<0.001"}, {0.018, "0.018"}, {2.5e-4, "<0.001"}} {
+	}{{0.0076, "0.0076"}, {9.4e-5, "0.000094"}, {0.018, "0.018"}, {2.5e-4, "0.00025"}, {0.03, "0.030"}} {
 		if got := sigText(tc.s); got != tc.want {
 			t.Errorf("sigText(%g) = %q, want %q", tc.s, got, tc.want)
 		}

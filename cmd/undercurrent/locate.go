@@ -15,6 +15,7 @@ import (
 	"strings"
 	"sync"
 	"time"
+	"unicode/utf8"
 
 	"github.com/schollz/progressbar/v3"
 	"github.com/spf13/pflag"
@@ -277,13 +278,20 @@ The estimates are not a verified locate: confirm before excavation by
 approved methods, treat every conductor as live; local codes and licensed
 practice prevail.
 
+In the examples, survey.csv, base.csv and cal.json are the logs and the
+calibration of the walk-through in README.md, out/demo/fenwick-lane.csv is
+the demo's log, and two.csv is written by "undercurrent simulate
+testdata/scenarios/two-conductors.toml -o two.csv"; your-coil-log.csv and
+your-coil-response.csv stand for your own coil log and response table,
+which no command here writes.
+
 Examples:
   undercurrent locate --group-by group survey.csv
-  undercurrent locate --base base.min --calibration cal.json --group-by group survey.csv -o results
-  undercurrent locate --freq 50 --window 0.1 --group-by group --sensor-height 0.3 --min-cover 0.6 --cover-code "UK 11 kV practice" walk.parquet -o results
-  undercurrent locate --count 2 --json line7.csv > line7.json
-  undercurrent locate --freq 50 --coil turns=4000,area=3e-4,mu=120 --unit bx=mV,by=mV,bz=mV --group-by group fenwick-lane-coil.csv -o results
-  undercurrent locate --freq 512 --coil-response coil-response.csv --group-by group fenwick-lane-coil.csv -o results`,
+  undercurrent locate --base base.csv --calibration cal.json --group-by group survey.csv -o results
+  undercurrent locate --freq 50 --window 0.1 --group-by group --sensor-height 0.3 --min-cover 0.6 --cover-code "UK 11 kV practice" out/demo/fenwick-lane.csv -o results
+  undercurrent locate --count 2 --group-by group --json two.csv > two.json
+  undercurrent locate --freq 50 --coil turns=4000,area=3e-4,mu=120 --unit bx=mV,by=mV,bz=mV --group-by group your-coil-log.csv -o results
+  undercurrent locate --freq 512 --coil-response your-coil-response.csv --group-by group your-coil-log.csv -o results`,
 		setFlags: o.setFlags,
 		run: func(ctx context.Context, fs *pflag.FlagSet, args []string, stdout, stderr io.Writer) error {
 			if len(args) == 0 {
@@ -870,7 +878,16 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 	if doc.Signal.Mode == report.SignalAC {
 		cw = 30 // RMS and phase, each with its sigma
 	}
-	fmt.Fprintf(w, "%-8s %10s %*s %16s %9s", "group", "chainage", cw, "current (A)", "depth (m)", "rms (nT)")
+	// Values keep every digit their sigmas call for (a milliampere current
+	// to a microampere sigma), so the columns widen to the widest.
+	dw := 16 // depth column
+	for _, g := range doc.Groups {
+		for _, s := range g.Sources {
+			cw = max(cw, 1+utf8.RuneCountInString(sourceCurrent(s)))
+			dw = max(dw, 1+utf8.RuneCountInString(report.PlusMinus(s.Depth, s.DepthSigma)))
+		}
+	}
+	fmt.Fprintf(w, "%-8s %10s %*s %*s %9s", "group", "chainage", cw, "current (A)", dw, "depth (m)", "rms (nT)")
 	if tracks {
 		// Which conductor along the route each source belongs to: 1 is the
 		// route's own, 2, 3, ... the further ones followed (doc.Conductors).
@@ -887,7 +904,7 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 			ch = fmt.Sprintf("%.1f m", *g.Chainage)
 		}
 		if len(g.Sources) == 0 {
-			fmt.Fprintf(w, "%-8s %10s %*s %16s %9.3g  %s\n", key, ch, cw, "-", "-", g.RMS, g.Problem)
+			fmt.Fprintf(w, "%-8s %10s %*s %*s %9.3g  %s\n", key, ch, cw, "-", dw, "-", g.RMS, g.Problem)
 			continue
 		}
 		for i, s := range g.Sources {
@@ -895,16 +912,7 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 			if i > 0 {
 				k, ch = "", ""
 			}
-			// Values to the decimal place of their sigmas, as in the report.
-			cur := report.PlusMinus(s.Current, s.CurrentSigma)
-			switch {
-			case s.Kind == report.KindDipole:
-				cur = "object"
-			case s.Phase != nil && s.PhaseSigma != nil:
-				cur += " ∠" + report.PlusMinus(*s.Phase, *s.PhaseSigma) + "°"
-			case s.Phase != nil:
-				cur += fmt.Sprintf(" ∠%.0f°", *s.Phase)
-			}
+			cur := sourceCurrent(s)
 			note := ""
 			if i == 0 && g.Problem != "" {
 				note = "  " + g.Problem
@@ -919,8 +927,11 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 				}
 				note = fmt.Sprintf(" %9s", c) + note
 			}
-			fmt.Fprintf(w, "%-8s %10s %*s %16s %9.3g%s\n", k, ch, cw, cur, report.PlusMinus(s.Depth, s.DepthSigma), g.RMS, note)
+			fmt.Fprintf(w, "%-8s %10s %*s %*s %9.3g%s\n", k, ch, cw, cur, dw, report.PlusMinus(s.Depth, s.DepthSigma), g.RMS, note)
 		}
+	}
+	for i := range doc.Conductors {
+		fmt.Fprintln(w, report.ConductorSummary(doc, &doc.Conductors[i]))
 	}
 	if len(doc.Findings) == 0 {
 		fmt.Fprintln(w, "findings: none")
@@ -1084,4 +1095,20 @@ func parseMains(text string) ([]float64, error) {
 		out = append(out, v)
 	}
 	return out, nil
+}
+
+// sourceCurrent writes a source's current for the summary table: to the
+// decimal place of its sigma, as in the report, with the phase for AC, or
+// "object" for a magnetised object.
+func sourceCurrent(s report.Source) string {
+	cur := report.PlusMinus(s.Current, s.CurrentSigma)
+	switch {
+	case s.Kind == report.KindDipole:
+		cur = "object"
+	case s.Phase != nil && s.PhaseSigma != nil:
+		cur += " ∠" + report.PlusMinus(*s.Phase, *s.PhaseSigma) + "°"
+	case s.Phase != nil:
+		cur += fmt.Sprintf(" ∠%.0f°", *s.Phase)
+	}
+	return cur
 }

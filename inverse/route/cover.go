@@ -83,12 +83,11 @@ func coverFinding(run []*Placed, sev Severity, set *Settings, single bool) Findi
 	}
 }
 
-// pm formats v ± s with s to two significant digits and v to the same
-// decimals (at least two).
+// pm formats v ± s as PlusMinus does (s to two significant digits, v to
+// the same decimal place); without a sigma, v to two decimals.
 func pm(v, s float64) string {
-	if s <= 0 || math.IsInf(s, 0) {
+	if !(s > 0) || math.IsInf(s, 0) {
 		return fmt.Sprintf("%.2f", v)
 	}
-	d := max(2, 1-int(math.Floor(math.Log10(s))))
-	return fmt.Sprintf("%.*f ± %.*f", d, v, d, s)
+	return PlusMinus(v, s)
 }

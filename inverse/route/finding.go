@@ -1,6 +1,9 @@
 package route
 
-import "fmt"
+import (
+	"fmt"
+	"math"
+)
 
 // Kind says what a Finding is about.
 type Kind string
@@ -64,10 +67,11 @@ type Value struct {
 	Unit  string
 }
 
-// String formats v as "name = value ± sigma unit".
+// String formats v as "name = value ± sigma unit", the sigma to two
+// significant digits and the value to the same decimal place (PlusMinus).
 func (v Value) String() string {
-	if v.Sigma > 0 {
-		return fmt.Sprintf("%s = %.3g ± %.2g %s", v.Name, v.Value, v.Sigma, v.Unit)
+	if v.Sigma > 0 && !math.IsInf(v.Sigma, 0) {
+		return fmt.Sprintf("%s = %s %s", v.Name, PlusMinus(v.Value, v.Sigma), v.Unit)
 	}
 	return fmt.Sprintf("%s = %.3g %s", v.Name, v.Value, v.Unit)
 }

@@ -47,7 +47,7 @@ func steps(ps []Placed, set *Settings, tau, widen float64) (out []Finding) {
 			note = fmt.Sprintf(" (widened %.2g times for the few stations it is estimated from)", widen)
 		}
 		for i := range out {
-			out[i].Message += fmt.Sprintf("; sigmas include an excess scatter between stations of %.2g A, beyond what the fits' own sigmas explain%s", tau, note)
+			out[i].Message += fmt.Sprintf("; sigmas include an excess scatter between stations of %s A, beyond what the fits' own sigmas explain%s", SigmaText(tau), note)
 			out[i].Values = append(out[i].Values, Value{Name: "between-station scatter", Value: tau, Unit: "A"})
 		}
 	}()
@@ -202,20 +202,23 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64) []F
 			verb, why = "rises", "current joining the conductor there (a bond, a tee or another source)"
 		}
 		// Two significant digits of the sigma, the values to match.
-		dec := 2
-		if sigma > 0 {
-			dec = max(0, 1-int(math.Floor(math.Log10(sigma))))
+		dec, ok := SigmaDecimals(sigma)
+		if !ok {
+			dec = min(dec, MaxDecimals)
+			if !(sigma > 0) {
+				dec = 2
+			}
 		}
 		kind, severity := KindCurrentStep, SeverityWarning
-		msg := fmt.Sprintf("current %s by %.*f ± %.*f A between %s (chainage %.1f m) and %s (%.1f m)%s: %s%s",
-			verb, dec, math.Abs(size), dec, sigma, label(first), first.Chainage, label(second), second.Chainage, along, why, fed)
+		msg := fmt.Sprintf("current %s by %s A between %s (chainage %.1f m) and %s (%.1f m)%s: %s%s",
+			verb, pm(math.Abs(size), sigma), label(first), first.Chainage, label(second), second.Chainage, along, why, fed)
 		// A change under MinStep of the current is information, not a step
 		// (with the trend disabled every raw difference is a step, as
 		// asked).
 		if level := math.Max(up, down); set.trendWindow() > 0 && math.Abs(size) < set.minStep()*level {
 			kind, severity = KindCurrentChange, SeverityInfo
-			msg = fmt.Sprintf("current %s by %.*f ± %.*f A (%.2g%%) between %s (chainage %.1f m) and %s (%.1f m)%s, beyond its sigma but under the %.3g%% taken as a step: at that size more likely the straight-line model's error, where the conductor changes depth or bends within a few depths of a traverse, than current leaving or joining (traverses closer together there would tell)",
-				verb, dec, math.Abs(size), dec, sigma, 100*math.Abs(size)/level, label(first), first.Chainage, label(second), second.Chainage, along, 100*set.minStep())
+			msg = fmt.Sprintf("current %s by %s A (%.2g%%) between %s (chainage %.1f m) and %s (%.1f m)%s, beyond its sigma but under the %.3g%% taken as a step: at that size more likely the straight-line model's error, where the conductor changes depth or bends within a few depths of a traverse, than current leaving or joining (traverses closer together there would tell)",
+				verb, pm(math.Abs(size), sigma), 100*math.Abs(size)/level, label(first), first.Chainage, label(second), second.Chainage, along, 100*set.minStep())
 		}
 		f := Finding{
 			Kind:     kind,
@@ -249,14 +252,14 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64) []F
 		}
 		if ib-ia > 1 {
 			p, q := u[big], u[big+1]
-			f.Message = fmt.Sprintf("%s; most of the change (%.3g ± %.2g A) between %s and %s", msg,
-				math.Abs(d.dI[big]), d.s[big], label(p), label(q))
+			f.Message = fmt.Sprintf("%s; most of the change (%s A) between %s and %s", msg,
+				pm(math.Abs(d.dI[big]), d.s[big]), label(p), label(q))
 			f.Values = append(f.Values, Value{Name: "largest part", Value: d.dI[big], Sigma: d.s[big], Unit: "A"})
 		}
 		f.Message += fmt.Sprintf("; levels either side %.*f A and %.*f A (%d and %d stations)",
 			dec, pl.before, dec, pl.after, pl.nBefore, pl.nAfter)
 		if resolved {
-			f.Message += fmt.Sprintf("; most likely at chainage %.1f ± %.1f m", pl.at, pl.atSigma)
+			f.Message += fmt.Sprintf("; most likely at chainage %s m", pm(pl.at, pl.atSigma))
 		}
 		out = append(out, f)
 	}
@@ -279,8 +282,8 @@ func anomaly(a, p, b *Placed) Finding {
 		To:       p.Chainage,
 		Position: p.Point,
 		Keys:     []string{a.Key, p.Key, b.Key},
-		Message: fmt.Sprintf("current at %s (chainage %.1f m) is %.3g ± %.2g A %s both neighbours, %s and %s: more likely a local disturbance (a magnetised object nearby, a poor fit) than current leaving and rejoining; it is left out of the step search",
-			label(p), p.Chainage, math.Abs(dep), sigma, dir, label(a), label(b)),
+		Message: fmt.Sprintf("current at %s (chainage %.1f m) is %s A %s both neighbours, %s and %s: more likely a local disturbance (a magnetised object nearby, a poor fit) than current leaving and rejoining; it is left out of the step search",
+			label(p), p.Chainage, pm(math.Abs(dep), sigma), dir, label(a), label(b)),
 		Values: []Value{
 			{Name: "departure from neighbours", Value: dep, Sigma: sigma, Unit: "A"},
 			{Name: "current", Value: p.Current, Sigma: p.CurrentSigma, Unit: "A"},
