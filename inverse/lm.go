@@ -225,7 +225,7 @@ func levmar(p *lmProblem, x0 []float64, set lmSettings) (*lmResult, error) {
 		// SVD of R: R = U S V^T (R is overwritten with U).
 		V, sv := vBuf[:nf*nf], svBuf[:nf]
 		if !jacobiSVD(R, nf, sv, V) {
-			status = Stalled
+			status = NumericalFailure
 			break
 		}
 		beta := betaBuf[:nf]

@@ -24,6 +24,9 @@ const (
 	Stalled
 	// Linear: the model was linear and solved directly (FitStrengths).
 	Linear
+	// NumericalFailure: the step's singular value decomposition did not
+	// converge (non-finite or pathological numbers): the fit failed.
+	NumericalFailure
 )
 
 // Converged reports whether s is one of the convergence statuses.
@@ -53,6 +56,8 @@ func (s Status) String() string {
 		return "stopped: no further reduction possible in floating point"
 	case Linear:
 		return "solved: linear least squares"
+	case NumericalFailure:
+		return "failed: the step's singular value decomposition did not converge"
 	}
 	return "unknown status"
 }

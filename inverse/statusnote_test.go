@@ -15,7 +15,7 @@ import (
 // not a fit that failed). A reviewed run listed a stalled fit as "the fit did not
 // converge" while its Fit column, CSV and GeoJSON said ok.
 func TestStatusNoteAgreesWithOK(t *testing.T) {
-	for s := StatusNone; s <= Linear; s++ {
+	for s := StatusNone; s <= NumericalFailure; s++ {
 		used := s.Converged() || s == Stalled // report/build.go, Group.OK
 		note := statusNote(s)
 		if says := strings.Contains(note, "did not converge"); says == used {
@@ -27,6 +27,10 @@ func TestStatusNoteAgreesWithOK(t *testing.T) {
 	}
 	if n := statusNote(Stalled); !strings.Contains(n, "machine precision") {
 		t.Errorf("stalled note %q does not say it converged to machine precision", n)
+	}
+	// A step whose SVD did not converge is a failure, not a stall.
+	if n := statusNote(NumericalFailure); !strings.Contains(n, "did not converge") || !strings.Contains(n, "singular value decomposition") {
+		t.Errorf("numerical-failure note %q", n)
 	}
 	if n := statusNote(MaxIterations); !strings.Contains(n, "iteration limit") {
 		t.Errorf("iteration-limit note %q does not say why", n)
