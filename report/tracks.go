@@ -219,13 +219,14 @@ func associate(groups [][]trackSource, minStations int) [][]trackSource {
 
 // trackCandidates lists, for each station of the primary route r in route
 // order, the further line sources of its fit that may belong to a track,
-// placed across the primary conductor. Groups the primary route does not
-// use give none.
+// placed across the primary conductor. Groups whose fit failed give none;
+// a group refitted with a magnetised object (Dipole) gives its further
+// lines, fitted beside the object, like any other.
 func trackCandidates(fits []Fit, r *route.Route) [][]trackSource {
 	out := make([][]trackSource, len(r.Stations))
 	for k := range r.Stations {
 		p := &r.Stations[k]
-		if !p.OK || p.Dipole || p.Index < 0 || p.Index >= len(fits) {
+		if !p.OK || p.Index < 0 || p.Index >= len(fits) {
 			continue
 		}
 		res := fits[p.Index].Result

@@ -647,12 +647,22 @@ func TestDemo(t *testing.T) {
 		t.Errorf("depth_reference.ground_sigma_m %g, want the demo's 0.02", g)
 	}
 	// The LV feeder, 2.6 m to the south of the cable (to the right looking
-	// along it) at 0.7 m of cover, is followed as conductor 2.
+	// along it) at 0.7 m of cover, is followed as conductor 2, at T07 too,
+	// where the magnetised object is fitted beside the conductors (that
+	// group gave no track a source before, and the feeder's cover there
+	// went unchecked).
 	if len(doc.Conductors) != 1 {
 		t.Errorf("%d further conductors followed, want the LV feeder", len(doc.Conductors))
 	} else if c := doc.Conductors[0]; math.Abs(c.Offset-2.6) > 0.2 || len(c.Route.Stations) < 25 {
 		t.Errorf("conductor 2 at offset %.2f m on %d traverses, want about 2.6 m on most of 31", c.Offset, len(c.Route.Stations))
 	} else {
+		var t07 bool
+		for _, st := range c.Route.Stations {
+			t07 = t07 || st.Key == "T07" && st.Used && st.Cover != nil
+		}
+		if !t07 {
+			t.Error("conductor 2 has no usable station with a cover at T07")
+		}
 		for _, st := range c.Route.Stations {
 			if st.Used && st.Cover != nil && math.Abs(*st.Cover-0.70) > 0.05 {
 				t.Errorf("LV feeder cover %.3f m at %s, laid at 0.70 m", *st.Cover, st.Key)
