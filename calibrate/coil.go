@@ -1,6 +1,8 @@
 package calibrate
 
 import (
+	"bufio"
+	"bytes"
 	"encoding/csv"
 	"errors"
 	"fmt"
@@ -126,7 +128,7 @@ func (r *CoilResponse) Sensitivity(freq float64) (complex128, error) {
 		return 0, fmt.Errorf("calibrate: coil response: frequency %g Hz must be positive", freq)
 	}
 	if freq < r.Freq[0] || freq > r.Freq[n-1] {
-		return 0, fmt.Errorf("calibrate: coil response: %g Hz is outside the table's %g-%g Hz (the response is not extrapolated)", freq, r.Freq[0], r.Freq[n-1])
+		return 0, fmt.Errorf("calibrate: coil response: %s Hz is outside the table's %g-%g Hz (the response is not extrapolated)", freqText(freq, r.Freq[0], r.Freq[n-1]), r.Freq[0], r.Freq[n-1])
 	}
 	// The first row whose frequency is at or above freq.
 	j := sort.SearchFloat64s(r.Freq, freq)
@@ -138,6 +140,42 @@ func (r *CoilResponse) Sensitivity(freq float64) (complex128, error) {
 	mag := math.Exp(math.Log(r.Sens[i]) + u*(math.Log(r.Sens[j])-math.Log(r.Sens[i])))
 	ph := r.Phase[i] + u*(r.Phase[j]-r.Phase[i])
 	return cmplx.Rect(mag, ph*math.Pi/180), nil
+}
+
+// freqText formats the frequency f in plain notation with four
+// significant digits, or with as many more as it takes to tell it from
+// each of the frequencies edges ("50.05"; "49.998" beside an edge of 50).
+func freqText(f float64, edges ...float64) string {
+	for d := 4; ; d++ {
+		t := plainDigits(f, d)
+		clash := false
+		for _, e := range edges {
+			clash = clash || f != e && t == strconv.FormatFloat(e, 'f', -1, 64)
+		}
+		if !clash || d >= 15 {
+			return t
+		}
+	}
+}
+
+// plainDigits formats x in plain notation (no exponent) rounded to d
+// significant digits: 45238.9 gives "45240" and 0.0452389 "0.04524" with
+// d = 4.
+func plainDigits(x float64, d int) string {
+	if x == 0 || math.IsNaN(x) || math.IsInf(x, 0) {
+		return strconv.FormatFloat(x, 'f', -1, 64)
+	}
+	dec := d - 1 - int(math.Floor(math.Log10(math.Abs(x))))
+	if dec < 0 {
+		dec = 0
+	}
+	// Round to d digits first: 'f' alone keeps every integer digit.
+	r, _ := strconv.ParseFloat(strconv.FormatFloat(x, 'g', d, 64), 64)
+	t := strconv.FormatFloat(r, 'f', dec, 64)
+	if strings.Contains(t, ".") {
+		t = strings.TrimRight(strings.TrimRight(t, "0"), ".")
+	}
+	return t
 }
 
 // Sensitivity units of a response table, by the name of its second column.
@@ -154,11 +192,36 @@ var sensitivityColumns = map[string]float64{
 //
 // (in that order; the sensitivity's name gives its unit), then one row per
 // frequency, frequencies strictly increasing; lines starting with # are
-// comments. Phases are unwrapped (each moved by whole turns to within 180°
-// of the one before), so a table may wrap them at ±180°. name is used in
-// messages.
+// comments. As a spreadsheet exports it, the text may start with a UTF-8
+// byte order mark and the fields may be separated by semicolons instead of
+// commas (the header line decides); with semicolons a decimal comma is
+// read too ("3,14e-5"). Phases are unwrapped (each moved by whole turns to
+// within 180° of the one before), so a table may wrap them at ±180°. name
+// is used in messages.
 func ReadCoilResponse(rd io.Reader, name string) (*CoilResponse, error) {
-	cr := csv.NewReader(rd)
+	br := bufio.NewReader(rd)
+	// A byte order mark (U+FEFF in UTF-8) before the header is no part of
+	// its first name.
+	if b, err := br.Peek(3); err == nil && string(b) == "\ufeff" {
+		_, _ = br.Discard(3)
+	}
+	// The delimiter: a semicolon when the first line that is neither blank
+	// nor a comment holds one and no comma.
+	delim := ','
+	for n := 64; ; n *= 2 {
+		b, err := br.Peek(n)
+		if line, ok := headerLine(b, err != nil); ok {
+			if strings.Contains(line, ";") && !strings.Contains(line, ",") {
+				delim = ';'
+			}
+			break
+		}
+		if err != nil {
+			break
+		}
+	}
+	cr := csv.NewReader(br)
+	cr.Comma = delim
 	cr.Comment = '#'
 	cr.FieldsPerRecord = -1
 	cr.TrimLeadingSpace = true
@@ -181,7 +244,7 @@ func ReadCoilResponse(rd io.Reader, name string) (*CoilResponse, error) {
 		scale, ok = sensitivityColumns[head[1]]
 	}
 	if !ok {
-		return nil, fail(line, "header %q: want frequency_hz, then sensitivity_v_per_t, sensitivity_v_per_nt or sensitivity_mv_per_nt (the sensitivity's unit), then phase_deg (how far the voltage leads the field; -90 for an ideal coil)", strings.Join(head, ","))
+		return nil, fail(line, "header %q: want frequency_hz, then sensitivity_v_per_t, sensitivity_v_per_nt or sensitivity_mv_per_nt (the sensitivity's unit), then phase_deg (how far the voltage leads the field; -90 for an ideal coil)", strings.Join(head, string(delim)))
 	}
 	r := &CoilResponse{}
 	for {
@@ -198,7 +261,11 @@ func ReadCoilResponse(rd io.Reader, name string) (*CoilResponse, error) {
 		}
 		var v [3]float64
 		for k, f := range rec {
-			x, err := strconv.ParseFloat(strings.TrimSpace(f), 64)
+			t := strings.TrimSpace(f)
+			if delim == ';' {
+				t = strings.Replace(t, ",", ".", 1)
+			}
+			x, err := strconv.ParseFloat(t, 64)
 			if err != nil || math.IsNaN(x) || math.IsInf(x, 0) {
 				return nil, fail(line, "%s %q is not a finite number", head[k], f)
 			}
@@ -220,10 +287,36 @@ func ReadCoilResponse(rd io.Reader, name string) (*CoilResponse, error) {
 		r.Sens = append(r.Sens, v[1]*scale)
 		r.Phase = append(r.Phase, ph)
 	}
-	if len(r.Freq) < 2 {
-		return nil, fmt.Errorf("calibrate: coil response %s: %d rows: want at least two frequencies to interpolate between", name, len(r.Freq))
+	if n := len(r.Freq); n < 2 {
+		rows := "no rows"
+		if n == 1 {
+			rows = "one row"
+		}
+		return nil, fmt.Errorf("calibrate: coil response %s: %s: want at least two frequencies to interpolate between", name, rows)
 	}
 	return r, nil
+}
+
+// headerLine returns the first line of b that is neither blank nor a #
+// comment, and false when b ends before that line does (unless atEOF).
+func headerLine(b []byte, atEOF bool) (string, bool) {
+	for len(b) > 0 {
+		i := bytes.IndexByte(b, '\n')
+		if i < 0 && !atEOF {
+			return "", false
+		}
+		line := b
+		if i >= 0 {
+			line, b = b[:i], b[i+1:]
+		} else {
+			b = nil
+		}
+		t := strings.TrimSpace(string(line))
+		if t != "" && !strings.HasPrefix(t, "#") {
+			return t, true
+		}
+	}
+	return "", atEOF
 }
 
 // LoadCoilResponse reads a coil response table from a file

@@ -182,3 +182,61 @@ func ExampleReadCoilResponse() {
 	fmt.Printf("%.4f mV/nT at %.1f degrees\n", cmplx.Abs(h)*1e-6, cmplx.Phase(h)*180/math.Pi)
 	// Output: 0.0450 mV/nT at -89.4 degrees
 }
+
+// TestCoilResponseSpreadsheet: a table as a spreadsheet exports it, with a
+// UTF-8 byte order mark (U+FEFF, EF BB BF; The Unicode Standard, 23.8) and
+// semicolons between the fields, with decimal commas or points, reads as
+// the same table with commas.
+func TestCoilResponseSpreadsheet(t *testing.T) {
+	want, err := ReadCoilResponse(strings.NewReader(idealTable), "ideal.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	semi := strings.ReplaceAll(idealTable, ",", ";")
+	for name, text := range map[string]string{
+		"byte order mark":       "\xef\xbb\xbf" + idealTable,
+		"semicolons":            semi,
+		"mark and semicolons":   "\xef\xbb\xbf" + semi,
+		"semicolons and commas": strings.ReplaceAll(strings.ReplaceAll(semi, "6.283185307179586e", "6,283185307179586e"), "-90", "-90,0"),
+		"header after comments": "\xef\xbb\xbf# exported\n\n" + strings.TrimPrefix(semi, "# an air coil, 1000 turns of 1 cm²\n"),
+	} {
+		got, err := ReadCoilResponse(strings.NewReader(text), "sheet.csv")
+		if err != nil {
+			t.Errorf("%s: %v", name, err)
+			continue
+		}
+		if fmt.Sprint(got) != fmt.Sprint(want) {
+			t.Errorf("%s: %v, want %v", name, got, want)
+		}
+	}
+	// A comma table keeps the comma as the delimiter, so a decimal comma
+	// there is a fourth field.
+	if _, err := ReadCoilResponse(strings.NewReader("frequency_hz,sensitivity_v_per_t,phase_deg\n50,1,5,-90\n60,2,-90\n"), "t.csv"); err == nil || !strings.Contains(err.Error(), "4 values") {
+		t.Errorf("a decimal comma in a comma table: %v", err)
+	}
+}
+
+// TestCoilResponseMessages: counts take the singular, and a frequency
+// outside the table is given to four digits, or as many more as tell it
+// from the table's edge.
+func TestCoilResponseMessages(t *testing.T) {
+	_, err := ReadCoilResponse(strings.NewReader("frequency_hz,sensitivity_v_per_t,phase_deg\n50,1,-90\n"), "t.csv")
+	if err == nil || !strings.Contains(err.Error(), "t.csv: one row: want at least two") {
+		t.Errorf("one row: %v", err)
+	}
+	_, err = ReadCoilResponse(strings.NewReader("frequency_hz,sensitivity_v_per_t,phase_deg\n"), "t.csv")
+	if err == nil || !strings.Contains(err.Error(), "t.csv: no rows") {
+		t.Errorf("no rows: %v", err)
+	}
+	r := &CoilResponse{Freq: []float64{100, 400}, Sens: []float64{1, 4}, Phase: []float64{-90, -90}}
+	for f, want := range map[float64]string{
+		50.05080048416262: "50.05 Hz is outside the table's 100-400 Hz",
+		99.99871:          "99.999 Hz is outside",
+		400.0012:          "400.001 Hz is outside",
+		12345.678:         "12350 Hz is outside",
+	} {
+		if _, err := r.Sensitivity(f); err == nil || !strings.Contains(err.Error(), want) {
+			t.Errorf("%v Hz: %v, want %q", f, err, want)
+		}
+	}
+}

@@ -97,6 +97,30 @@ type Correction struct {
 	File string `json:"file,omitempty"`
 	// Summary is one line saying what was corrected and by how much.
 	Summary string `json:"summary"`
+	// Coil describes the induction coils whose voltages were converted to
+	// field (locate --coil or --coil-response); nil otherwise.
+	Coil *CoilResponse `json:"coil,omitempty"`
+}
+
+// CoilResponse is the response of the induction coils of a coil log, as
+// used to turn their voltages into field.
+type CoilResponse struct {
+	// Turns, AreaM2 (mean turn area, m²) and Mu (the core's apparent
+	// relative permeability) are the coil of Faraday's law V = -N A μ dB/dt
+	// (locate --coil); zero for a measured response.
+	Turns  float64 `json:"turns,omitempty"`
+	AreaM2 float64 `json:"area_m2,omitempty"`
+	Mu     float64 `json:"mu,omitempty"`
+	// FrequencyHz is the survey frequency at which SensitivityVPerT (the
+	// voltage amplitude per field amplitude, V/T) and PhaseDeg (how far
+	// the voltage leads the field, degrees: -90 for the ideal law) are
+	// given; each window was converted at its own estimated frequency.
+	FrequencyHz      float64 `json:"frequency_hz"`
+	SensitivityVPerT float64 `json:"sensitivity_v_per_t"`
+	PhaseDeg         float64 `json:"phase_deg"`
+	// Unit is the voltage unit the field columns were read in (V, mV, uV
+	// or nV).
+	Unit string `json:"unit"`
 }
 
 // Frame kinds.

@@ -1,13 +1,22 @@
 package main
 
 import (
+	"errors"
 	"fmt"
+	"io"
+	"io/fs"
 	"math"
 	"math/cmplx"
+	"os"
 	"sort"
 	"strconv"
 	"strings"
 
+	"github.com/apache/arrow-go/v18/arrow"
+	"github.com/apache/arrow-go/v18/arrow/ipc"
+	"github.com/apache/arrow-go/v18/arrow/memory"
+	"github.com/apache/arrow-go/v18/parquet/file"
+	"github.com/apache/arrow-go/v18/parquet/pqarrow"
 	"github.com/spf13/pflag"
 
 	"undercurrent/calibrate"
@@ -23,7 +32,9 @@ import (
 // senses only a changing field, so it needs --freq; the Earth-field check
 // of the readings' magnitude does not apply to volts, and a log whose
 // columns hold a large steady value draws a warning instead
-// (coilSteadyWarning).
+// (coilSteadyWarning). A log that gives its field columns a field unit
+// itself is refused (checkLog), and after the conversion the field is
+// checked for a unit or a coil constant gone wrong (fieldCheck).
 
 // coilFlags are locate's induction-coil options.
 type coilFlags struct {
@@ -36,14 +47,19 @@ type coilFlags struct {
 	// the units' names.
 	scale [3]float64
 	unit  [3]string
+	// mapped: the field column's source was named with --column.
+	mapped [3]bool
+	// declared: the field column's unit was given, by --unit or by the
+	// name --column maps it to.
+	declared [3]bool
 
 	// Set by load.
 	table *calibrate.CoilResponse
 }
 
 func (c *coilFlags) add(fs *pflag.FlagSet) {
-	fs.StringVar(&c.spec, "coil", "", "the field columns hold the voltages of induction coils (one per axis, alike) following Faraday's law V = -N A μ dB/dt: `turns=N,area=A[,mu=M]` (area the mean turn area in m², mu the core's apparent relative permeability, default 1); needs --freq; the columns are read in volts unless --unit says bx=mV,by=mV,bz=mV (V, mV, uV or nV)")
-	fs.StringVar(&c.response, "coil-response", "", "as --coil, for coils with a measured response: the CSV table `FILE` with the header frequency_hz,sensitivity_v_per_nt,phase_deg (or sensitivity_v_per_t, sensitivity_mv_per_nt), phase_deg how far the voltage leads the field (-90 for the ideal law); interpolated at each window's frequency")
+	fs.StringVar(&c.spec, "coil", "", "the field columns hold the voltages of induction coils (one per axis, alike) following Faraday's law V = -N A μ dB/dt: `turns=N,area=A[,mu=M]` (area the mean turn area in m², mu the core's apparent relative permeability, default 1); needs --freq; the columns are read in volts unless --unit says bx=mV,by=mV,bz=mV (V, mV, uV or nV, one unit for all three)")
+	fs.StringVar(&c.response, "coil-response", "", "as --coil, for coils with a measured response: the CSV table `FILE` with the header frequency_hz,sensitivity_v_per_nt,phase_deg (or sensitivity_v_per_t, sensitivity_mv_per_nt), phase_deg how far the voltage leads the field (-90 for the ideal law), commas or semicolons between the fields; interpolated at each window's frequency, and it must cover --freq")
 }
 
 // on reports whether a coil was given.
@@ -55,6 +71,7 @@ func (c *coilFlags) on() bool { return c.spec != "" || c.response != "" }
 func (c *coilFlags) check(o *locateOptions) error {
 	c.ideal, c.table = nil, nil
 	c.scale, c.unit = [3]float64{1, 1, 1}, [3]string{"V", "V", "V"}
+	c.mapped, c.declared = [3]bool{}, [3]bool{}
 	if !c.on() {
 		return nil
 	}
@@ -179,24 +196,53 @@ func (c *coilFlags) takeUnits(rf *readFlags) error {
 		}
 	}
 	rf.units, rf.unitsOld = keep, nil
+	named := [3]string{} // the --column entry that gave an axis its unit
 	for _, entry := range append(append([]string(nil), rf.columns...), rf.columnsOld...) {
 		for _, p := range strings.Split(entry, ",") {
 			k, name, _ := strings.Cut(p, "=")
 			ax := fieldAxis(k)
-			if ax < 0 || given[ax] {
+			if ax < 0 {
+				continue
+			}
+			c.mapped[ax] = true
+			if given[ax] {
 				continue
 			}
 			u := unitSuffix(name)
 			// In a name only the proper spelling counts ("bx_v" may be
 			// anything).
 			if s, ok := voltScale(u); ok && strings.HasSuffix(u, "V") {
-				c.scale[ax], c.unit[ax] = s, u
+				c.scale[ax], c.unit[ax], named[ax] = s, u, strings.TrimSpace(p)
 				continue
 			}
 			if magneticUnits[u] {
 				return usageErrorf("--column %s: the column's name says %s, but with a coil (--coil or --coil-response) the field columns hold the coils' voltages; if they really are volts, give their unit with --unit %s=V (or mV, uV, nV)", strings.TrimSpace(p), u, strings.ToLower(strings.TrimSpace(k)))
 			}
 		}
+	}
+	for ax := range 3 {
+		c.declared[ax] = given[ax] || named[ax] != ""
+	}
+	// The three coils are alike and logged alike: one voltage unit for
+	// the three columns. A unit given for one or two of them leaves the
+	// others in volts, which is almost always a unit forgotten.
+	if c.scale[0] != c.scale[1] || c.scale[1] != c.scale[2] {
+		flag, eg := "--column", "mV"
+		var parts []string
+		for ax, name := range []string{"bx", "by", "bz"} {
+			switch {
+			case given[ax]:
+				flag, eg = "--unit", c.unit[ax]
+				parts = append(parts, fmt.Sprintf("%s in %s (--unit)", name, c.unit[ax]))
+			case named[ax] != "":
+				eg = c.unit[ax]
+				parts = append(parts, fmt.Sprintf("%s in %s (--column %s)", name, c.unit[ax], named[ax]))
+			default:
+				parts = append(parts, name+" in V (no unit given)")
+			}
+		}
+		return usageErrorf("%s: with a coil (--coil or --coil-response) the three field columns hold the voltages of alike coils in one unit, but they would be read in different units: %s; give all three the same unit, as --unit bx=%s,by=%s,bz=%s",
+			flag, strings.Join(parts, ", "), eg, eg, eg)
 	}
 	return nil
 }
@@ -224,6 +270,140 @@ func unitSuffix(name string) string {
 	return ""
 }
 
+// checkLog refuses a coil log that gives its own field columns a
+// magnetic unit, for the field columns whose voltage unit was not given
+// (by --unit, or by a volt suffix in the name --column maps them to); opts
+// are the options the log is read with. A log says so in three ways:
+//
+//   - an IAGA-2002 file, whose field is nT by the format's definition;
+//   - an Arrow IPC or Parquet file in ingest's canonical form, as
+//     undercurrent convert and simulate write it: its schema metadata
+//     carries ingest.MetaFrame, and its bx, by, bz columns are nT by that
+//     form's definition (ingest's package documentation);
+//   - a field column found by its name, without --column, whose name ends
+//     in a field unit ("Bx_nT", "Bx (uT)"), which ingest reads as that
+//     unit and locate would read as volts.
+//
+// The first two are seen from the file's first bytes and its schema; the
+// third by opening the log with the mapping bx=bx (ingest finds a column
+// by its name, else the field column it found carries a unit suffix: the
+// only suffixes by which ingest takes a column for bx are field units).
+// Errors opening the log are left to the reading that follows.
+func (c *coilFlags) checkLog(path string, opts []ingest.Option) error {
+	var open []int // the axes to check
+	for ax := range 3 {
+		if !c.declared[ax] && !c.mapped[ax] {
+			open = append(open, ax)
+		}
+	}
+	if len(open) == 0 {
+		return nil
+	}
+	const advice = "with a coil (--coil or --coil-response) the field columns hold the coils' voltages; if this log's really are volts, give their unit with --unit bx=V,by=V,bz=V (or mV, uV, nV)"
+	format, meta := logSchema(path)
+	switch format {
+	case ingest.FormatIAGA:
+		return usageErrorf("%s: an IAGA-2002 file holds a magnetometer's field in nT (the format says so), not a coil's voltages: leave out --coil and --coil-response; %s", path, advice)
+	case ingest.FormatArrowFile, ingest.FormatArrowStream, ingest.FormatParquet:
+		if _, ok := meta[ingest.MetaFrame]; ok {
+			return usageErrorf("%s: the file's metadata (%s) says it is in undercurrent's canonical form, as undercurrent convert and simulate write it, whose field columns bx, by, bz are in nT: it holds a magnetometer's field, not a coil's voltages; %s", path, ingest.MetaFrame, advice)
+		}
+	}
+	// Positions given as WGS84 with --origin mean would be read through
+	// to find the origin: a fixed one spares that.
+	probe := append(append([]ingest.Option(nil), opts...), ingest.WithOrigin(ingest.Geodetic{}))
+	r, err := ingest.Open(path, probe...)
+	if err != nil {
+		return nil
+	}
+	r.Release()
+	for _, ax := range open {
+		name := []string{ingest.ColBx, ingest.ColBy, ingest.ColBz}[ax]
+		r, err := ingest.Open(path, append(probe, ingest.WithColumns(name+"="+name))...)
+		if err == nil {
+			r.Release()
+			continue
+		}
+		// The name and its unit, from ingest's mapping (which reads the
+		// log through; this is the way to a refusal).
+		col, unit := "", ""
+		if in, err := ingest.Inspect(path, probe...); err == nil {
+			for _, m := range in.Columns {
+				if m.Column == name {
+					col, unit = m.Source, unitSuffix(m.Source)
+				}
+			}
+		}
+		if col == "" {
+			return usageErrorf("%s: the log's %s column is named with a field unit (as %s_nT): it holds a magnetometer's field, not a coil's voltages; %s", path, name, name, advice)
+		}
+		return usageErrorf("%s: the column %s (read as %s) is named in %s, a field unit: it holds a magnetometer's field, not a coil's voltages; %s", path, col, name, unit, advice)
+	}
+	return nil
+}
+
+// logSchema returns the format of the log at path, as ingest detects it
+// from the first bytes, and for an Arrow IPC or Parquet file its schema
+// metadata (nil when it cannot be read: the reading that follows reports
+// that).
+func logSchema(path string) (format ingest.Format, meta map[string]string) {
+	f, err := os.Open(path)
+	if err != nil {
+		return "", nil
+	}
+	defer f.Close()
+	head := make([]byte, 4096)
+	n, _ := io.ReadFull(f, head)
+	format = ingest.DetectFormat(head[:n])
+	if _, err := f.Seek(0, io.SeekStart); err != nil {
+		return format, nil
+	}
+	defer func() {
+		// The Arrow and Parquet libraries may panic on a corrupt file.
+		if recover() != nil {
+			meta = nil
+		}
+	}()
+	var sc *arrow.Schema
+	switch format {
+	case ingest.FormatArrowFile:
+		r, err := ipc.NewFileReader(f)
+		if err != nil {
+			return format, nil
+		}
+		defer r.Close()
+		sc = r.Schema()
+	case ingest.FormatArrowStream:
+		r, err := ipc.NewReader(f)
+		if err != nil {
+			return format, nil
+		}
+		defer r.Release()
+		sc = r.Schema()
+	case ingest.FormatParquet:
+		pf, err := file.NewParquetReader(f)
+		if err != nil {
+			return format, nil
+		}
+		defer pf.Close()
+		fr, err := pqarrow.NewFileReader(pf, pqarrow.ArrowReadProperties{}, memory.DefaultAllocator)
+		if err != nil {
+			return format, nil
+		}
+		if sc, err = fr.Schema(); err != nil {
+			return format, nil
+		}
+	default:
+		return format, nil
+	}
+	meta = map[string]string{}
+	md := sc.Metadata()
+	for i, k := range md.Keys() {
+		meta[k] = md.Values()[i]
+	}
+	return format, meta
+}
+
 // readOptions are the ingest options a coil log adds: its field columns
 // read as the numbers written (whatever a name's suffix says; locate
 // scales them to volts, toVolts).
@@ -234,18 +414,31 @@ func (c *coilFlags) readOptions() []ingest.Option {
 	return []ingest.Option{ingest.WithUnits(ingest.ColBx+"=nT", ingest.ColBy+"=nT", ingest.ColBz+"=nT")}
 }
 
-// load reads the response table of --coil-response and records the coil
-// in the document (as its calibration: what turned the readings into
-// field).
-func (c *coilFlags) load(doc *report.Document) error {
-	if c.response != "" {
-		t, err := calibrate.LoadCoilResponse(c.response)
-		if err != nil {
-			return err
-		}
-		c.table = t
-		doc.Inputs = append(doc.Inputs, fileInput("coil-response", c.response, 0))
+// load reads the response table of --coil-response, refuses one that does
+// not cover the survey frequency freq (--freq) before any log is read, and
+// records the table among the document's inputs.
+func (c *coilFlags) load(doc *report.Document, freq float64) error {
+	if c.response == "" {
+		return nil
 	}
+	t, err := calibrate.LoadCoilResponse(c.response)
+	if err != nil {
+		msg := strings.TrimPrefix(err.Error(), "calibrate: ")
+		msg = strings.TrimPrefix(msg, "coil response ")
+		if errors.Is(err, fs.ErrNotExist) {
+			return usageErrorf("--coil-response %s: no such file (the coil's response table: frequency_hz,sensitivity_v_per_nt,phase_deg)", c.response)
+		}
+		if !strings.HasPrefix(msg, c.response) {
+			msg = c.response + ": " + msg
+		}
+		return fmt.Errorf("--coil-response %s", msg)
+	}
+	lo, hi := t.Freq[0], t.Freq[len(t.Freq)-1]
+	if freq > 0 && (freq < lo || freq > hi) {
+		return usageErrorf("--coil-response %s: the table covers %g-%g Hz, which does not reach the survey frequency --freq %g Hz, and the response is not extrapolated: add rows around %g Hz (a row on each side of it, with room for the frequency's drift), or check --freq", c.response, lo, hi, freq, freq)
+	}
+	c.table = t
+	doc.Inputs = append(doc.Inputs, fileInput("coil-response", c.response, 0))
 	return nil
 }
 
@@ -270,12 +463,147 @@ func (c *coilFlags) toVolts(s *ingest.Samples) {
 }
 
 // convert turns demodulated windows of coil voltages into field, each
-// window at its own frequency.
-func (c *coilFlags) convert(ws []calibrate.Window) error {
+// window at its own frequency. path is the log, for messages. A window
+// whose frequency (estimated from the log) falls outside a response table
+// is refused here, worded for the command line.
+func (c *coilFlags) convert(path string, ws []calibrate.Window) error {
 	if c.ideal != nil {
-		return calibrate.CoilWindows(ws, *c.ideal)
+		if err := calibrate.CoilWindows(ws, *c.ideal); err != nil {
+			return fmt.Errorf("%s: %w", path, err)
+		}
+		return nil
 	}
-	return calibrate.SensitivityWindows(ws, c.table)
+	t := c.table
+	lo, hi := t.Freq[0], t.Freq[len(t.Freq)-1]
+	for _, w := range ws {
+		if w.Freq >= lo && w.Freq <= hi {
+			continue
+		}
+		side, edge := "below", lo
+		if w.Freq > hi {
+			side, edge = "above", hi
+		}
+		return fmt.Errorf("%s: the signal's frequency, estimated from the log at %s Hz, lies %s the coil response table %s (--coil-response), which covers %g-%g Hz, and the response is not extrapolated: add a row %s %g Hz to the table (the frequency drifts a little about --freq), or check that --freq is the frequency the log holds",
+			path, freqText(w.Freq, lo, hi), side, c.response, lo, hi, side, edge)
+	}
+	if err := calibrate.SensitivityWindows(ws, t); err != nil {
+		return fmt.Errorf("%s: %w", path, err)
+	}
+	return nil
+}
+
+// freqText formats the frequency f in plain notation with four
+// significant digits, or with as many more as it takes to tell it from
+// each of the frequencies edges ("50.05"; "49.998" beside an edge of 50).
+func freqText(f float64, edges ...float64) string {
+	for d := 4; ; d++ {
+		t := plainDigits(f, d)
+		clash := false
+		for _, e := range edges {
+			clash = clash || f != e && t == strconv.FormatFloat(e, 'f', -1, 64)
+		}
+		if !clash || d >= 15 {
+			return t
+		}
+	}
+}
+
+// plainDigits formats x in plain notation (no exponent) rounded to d
+// significant digits: 45238.9 gives "45240" and 0.0452389 "0.04524" with
+// d = 4.
+func plainDigits(x float64, d int) string {
+	if x == 0 || math.IsNaN(x) || math.IsInf(x, 0) {
+		return strconv.FormatFloat(x, 'f', -1, 64)
+	}
+	dec := max(0, d-1-int(math.Floor(math.Log10(math.Abs(x)))))
+	r, _ := strconv.ParseFloat(strconv.FormatFloat(x, 'g', d, 64), 64)
+	t := strconv.FormatFloat(r, 'f', dec, 64)
+	if strings.Contains(t, ".") {
+		t = strings.TrimRight(strings.TrimRight(t, "0"), ".")
+	}
+	return t
+}
+
+// The AC field of a buried conductor at the sensors, RMS: a cable's field
+// is μ0 I/(2π r) = 2e-7 T·m/A × I/r (Ampère's law for a long straight
+// line), so 1 mT needs 5000 A at 1 m and 0.1 T needs 500 kA; a survey's
+// fields are nanotesla to tens of microtesla.
+const (
+	// coilImplausibleNT: beyond this (1 mT) in any window locate warns.
+	coilImplausibleNT = 1e6
+	// coilImpossibleNT: beyond this (0.1 T) for the windows' median
+	// locate refuses the log, as it refuses a magnetometer log's median
+	// |B| (implausibleHighNT).
+	coilImpossibleNT = implausibleHighNT
+)
+
+// fieldCheck looks at the field of the windows of one log after the
+// coil's conversion (nT, RMS phasors): it returns an error when their
+// median magnitude is above coilImpossibleNT and a warning when any is
+// above coilImplausibleNT; path names the log.
+func (c *coilFlags) fieldCheck(path string, ws []calibrate.Window) (string, error) {
+	if len(ws) == 0 {
+		return "", nil
+	}
+	mags := make([]float64, 0, len(ws))
+	for _, w := range ws {
+		m := math.Sqrt(sq(cmplx.Abs(w.B[0])) + sq(cmplx.Abs(w.B[1])) + sq(cmplx.Abs(w.B[2])))
+		if !math.IsNaN(m) {
+			mags = append(mags, m)
+		}
+	}
+	if len(mags) == 0 {
+		return "", nil
+	}
+	sort.Float64s(mags)
+	med, top := mags[len(mags)/2], mags[len(mags)-1]
+	if !(top > coilImplausibleNT) {
+		return "", nil
+	}
+	why := fmt.Sprintf("a unit or a coil constant is probably wrong: the field columns were read in %s%s and converted by %s", c.unitsText(), c.unitSource(), c.constantText())
+	if c.response == "" {
+		why += "; a unit left out reads millivolts as volts, a thousand times too large"
+	} else {
+		why += "; a unit left out reads millivolts as volts, a thousand times too large, and a table's sensitivity in V/nT under the heading sensitivity_v_per_t gives a field a thousand million times too large"
+	}
+	if med > coilImpossibleNT {
+		return "", fmt.Errorf("%s: after the coil's conversion the AC field at the sensors is %s RMS (the median of the windows), above 0.1 T, which no buried conductor gives (500 kA at 1 m): %s. Refused", path, teslaText(med), why)
+	}
+	return fmt.Sprintf("%s: after the coil's conversion the AC field at the sensors reaches %s RMS, over 1 mT, which a buried conductor gives only with 5000 A at 1 m: %s", path, teslaText(top), why), nil
+}
+
+func sq(x float64) float64 { return x * x }
+
+// teslaText words a field in nT in the unit that suits it: nT, µT, mT or T.
+func teslaText(nT float64) string {
+	switch a := math.Abs(nT); {
+	case a >= 1e9:
+		return plainDigits(nT*1e-9, 3) + " T"
+	case a >= 1e6:
+		return plainDigits(nT*1e-6, 3) + " mT"
+	case a >= 1e3:
+		return plainDigits(nT*1e-3, 3) + " µT"
+	}
+	return plainDigits(nT, 3) + " nT"
+}
+
+// unitSource says where the field columns' unit came from, for messages.
+func (c *coilFlags) unitSource() string {
+	switch {
+	case c.declared == [3]bool{}:
+		return " (no unit given: volts)"
+	case c.declared != [3]bool{true, true, true}:
+		return ""
+	}
+	return " (as given)"
+}
+
+// constantText words the coil's response model, for messages.
+func (c *coilFlags) constantText() string {
+	if c.ideal != nil {
+		return "--coil " + c.spec
+	}
+	return "the response table " + c.response + " (--coil-response)"
 }
 
 // unitsText words the field columns' units: "mV", or per axis when they
@@ -292,7 +620,8 @@ func (c *coilFlags) unitsText() string {
 func (c *coilFlags) summary(freq float64) string {
 	at := ""
 	if h, err := c.sensitivity().Sensitivity(freq); err == nil {
-		at = fmt.Sprintf("; at %g Hz the coil gives %.4g V/T (%.4g mV/nT), the voltage's phase %.1f° from the field's", freq, cmplx.Abs(h), cmplx.Abs(h)*1e-6, cmplx.Phase(h)*180/math.Pi)
+		at = fmt.Sprintf("; at %s Hz the coil gives %s V/T (%s mV/nT), the voltage's phase %.1f° from the field's",
+			plainDigits(freq, 4), plainDigits(cmplx.Abs(h), 4), plainDigits(cmplx.Abs(h)*1e-6, 4), cmplx.Phase(h)*180/math.Pi)
 	}
 	if c.ideal != nil {
 		mu := c.ideal.Mu
@@ -305,6 +634,23 @@ func (c *coilFlags) summary(freq float64) string {
 	t := c.table
 	return fmt.Sprintf("induction coil with the measured response in %s (%d frequencies, %g-%g Hz): the field columns' voltages (%s) were demodulated and each window converted to field at its own frequency, B = V/H, with the response H interpolated there%s",
 		c.response, len(t.Freq), t.Freq[0], t.Freq[len(t.Freq)-1], c.unitsText(), at)
+}
+
+// correction records the coil in the document, as its calibration (what
+// turned the readings into field), with the coil's constants and its
+// response at the demodulation frequency freq.
+func (c *coilFlags) correction(freq float64) *report.Correction {
+	cr := &report.CoilResponse{FrequencyHz: freq, Unit: c.unitsText()}
+	if c.ideal != nil {
+		cr.Turns, cr.AreaM2, cr.Mu = c.ideal.Turns, c.ideal.Area, c.ideal.Mu
+		if cr.Mu == 0 {
+			cr.Mu = 1
+		}
+	}
+	if h, err := c.sensitivity().Sensitivity(freq); err == nil {
+		cr.SensitivityVPerT, cr.PhaseDeg = cmplx.Abs(h), cmplx.Phase(h)*180/math.Pi
+	}
+	return &report.Correction{File: c.response, Summary: c.summary(freq), Coil: cr}
 }
 
 // coilSteadyRatio is how many times its variation the steady part of a

@@ -10,6 +10,11 @@ import (
 	"strings"
 	"testing"
 
+	"github.com/apache/arrow-go/v18/arrow"
+	"github.com/apache/arrow-go/v18/arrow/array"
+	"github.com/apache/arrow-go/v18/arrow/ipc"
+	"github.com/apache/arrow-go/v18/arrow/memory"
+
 	"undercurrent/ingest"
 	"undercurrent/inverse/simulate"
 )
@@ -33,15 +38,25 @@ type coilDoc struct {
 	Calibration *struct {
 		File    string `json:"file"`
 		Summary string `json:"summary"`
+		Coil    *struct {
+			Turns            float64 `json:"turns"`
+			AreaM2           float64 `json:"area_m2"`
+			Mu               float64 `json:"mu"`
+			FrequencyHz      float64 `json:"frequency_hz"`
+			SensitivityVPerT float64 `json:"sensitivity_v_per_t"`
+			PhaseDeg         float64 `json:"phase_deg"`
+			Unit             string  `json:"unit"`
+		} `json:"coil"`
 	} `json:"calibration"`
+	Signal struct {
+		Mode        string  `json:"mode"`
+		FrequencyHz float64 `json:"frequency_hz"`
+	} `json:"signal"`
 	Inputs []struct {
 		Role   string `json:"role"`
 		Path   string `json:"path"`
 		SHA256 string `json:"sha256"`
 	} `json:"inputs"`
-	Signal struct {
-		Mode string `json:"mode"`
-	} `json:"signal"`
 	Groups []struct {
 		Key     string      `json:"key"`
 		Sources []docSource `json:"sources"`
@@ -86,15 +101,25 @@ func locateCoil(t *testing.T, args ...string) *coilDoc {
 // dropped.
 func coilWalk(t *testing.T, dir string) (sc *simulate.Scenario, fieldLog, coilLog string) {
 	t.Helper()
+	return coilWalkAt(t, dir, 50)
+}
+
+// coilWalkAt is coilWalk with the cable's current at freq Hz instead of
+// the scenario's 50 Hz (the coil's noise stays that of coilNoiseNT at
+// 50 Hz).
+func coilWalkAt(t *testing.T, dir string, freq float64) (sc *simulate.Scenario, fieldLog, coilLog string) {
+	t.Helper()
 	raw, err := os.ReadFile(filepath.Join("..", "..", "testdata", "scenarios", "ac-walk-2khz.toml"))
 	if err != nil {
 		t.Fatal(err)
 	}
 	text := string(raw)
-	if !strings.Contains(text, "noise_nt = 10.0") || !strings.Contains(text, "sample_rate_hz = 2000.0") {
-		t.Fatal("ac-walk-2khz.toml no longer sets noise_nt = 10.0 and sample_rate_hz = 2000.0")
+	if !strings.Contains(text, "noise_nt = 10.0") || !strings.Contains(text, "sample_rate_hz = 2000.0") ||
+		strings.Count(text, "frequency_hz = 50.0\n") != 1 {
+		t.Fatal("ac-walk-2khz.toml no longer sets noise_nt = 10.0, sample_rate_hz = 2000.0 and one frequency_hz = 50.0")
 	}
 	text = strings.Replace(text, "noise_nt = 10.0", "noise_nt = 0.0", 1)
+	text = strings.Replace(text, "frequency_hz = 50.0\n", fmt.Sprintf("frequency_hz = %g\n", freq), 1)
 	path := filepath.Join(dir, "walk.toml")
 	if err := os.WriteFile(path, []byte(text), 0o644); err != nil {
 		t.Fatal(err)
@@ -254,19 +279,41 @@ func TestLocateCoil(t *testing.T) {
 		t.Errorf("signal %q, want ac", doc.Signal.Mode)
 	}
 	checkCoilTruth(t, doc, sc, 1, 0)
+	// The coil's sensitivity at 50 Hz is N A μ 2π f = 45238.9 V/T
+	// (Faraday's law), said in plain numbers.
 	if c := doc.Calibration; c == nil || !strings.Contains(c.Summary, "induction coil") || !strings.Contains(c.Summary, "4000 turns") ||
-		!strings.Contains(c.Summary, "0.0003 m²") || !strings.Contains(c.Summary, "permeability 120") || !strings.Contains(c.Summary, "(mV)") {
+		!strings.Contains(c.Summary, "0.0003 m²") || !strings.Contains(c.Summary, "permeability 120") || !strings.Contains(c.Summary, "(mV)") ||
+		!strings.Contains(c.Summary, "at 50 Hz the coil gives 45240 V/T (0.04524 mV/nT)") {
 		t.Errorf("the document's calibration does not record the coil: %+v", c)
 	}
-	if doc.Settings["coil"] != coilSpec || !strings.Contains(doc.Settings["unit"], "bx=mV") {
-		t.Errorf("settings record coil %q and unit %q, want %q and bx=mV,...", doc.Settings["coil"], doc.Settings["unit"], coilSpec)
+	if c := doc.Calibration; c == nil || c.Coil == nil || c.Coil.Turns != coilTurns || c.Coil.AreaM2 != coilArea || c.Coil.Mu != coilMu ||
+		c.Coil.FrequencyHz != doc.Signal.FrequencyHz || c.Coil.Unit != "mV" || c.Coil.PhaseDeg != -90 ||
+		math.Abs(c.Coil.SensitivityVPerT-coilTurns*coilArea*coilMu*2*math.Pi*doc.Signal.FrequencyHz) > 1e-12*c.Coil.SensitivityVPerT {
+		t.Errorf("the document's calibration has no machine-readable coil, or the wrong one: %+v", doc.Calibration)
+	}
+	// The setting as given, not as a printed Go slice ("[bx=mV,...]").
+	if doc.Settings["coil"] != coilSpec || doc.Settings["unit"] != "bx=mV,by=mV,bz=mV" {
+		t.Errorf("settings record coil %q and unit %q, want %q and bx=mV,by=mV,bz=mV", doc.Settings["coil"], doc.Settings["unit"], coilSpec)
 	}
 	for _, w := range doc.Warnings {
-		// Neither the Earth-field check (volts are not nT) nor the steady
-		// part check (a coil's voltages have none) may fire.
-		if strings.Contains(w, "median |B|") || strings.Contains(w, "magnetometer") {
+		// Neither the Earth-field check (volts are not nT), the steady
+		// part check (a coil's voltages have none) nor the field's
+		// plausibility check may fire.
+		if strings.Contains(w, "median |B|") || strings.Contains(w, "magnetometer") || strings.Contains(w, "after the coil's conversion") {
 			t.Errorf("coil log warned: %s", w)
 		}
+	}
+
+	// The report's Settings table gives the units as given, not as a
+	// printed Go slice.
+	out := filepath.Join(dir, "results")
+	mustCLI(t, append([]string{"locate", "-o", out}, args...)...)
+	html, err := os.ReadFile(filepath.Join(out, "report.html"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(string(html), ">bx=mV,by=mV,bz=mV<") || strings.Contains(string(html), "[bx=mV") {
+		t.Errorf("report.html does not give the units as bx=mV,by=mV,bz=mV")
 	}
 
 	// The same voltages in volts, the unit taken from the column names
@@ -301,6 +348,38 @@ func TestLocateCoil(t *testing.T) {
 	// thousand times too large, and so is the current.
 	volts := locateCoil(t, "--freq", "50", "--window", "0.1", "--group-by", "group", "--reference-z", "0", "--coil", coilSpec, coilLog)
 	checkCoilTruth(t, volts, sc, 1000, 0)
+	// So is the field at the sensors, which draws a warning: the largest
+	// window's is the cable's field right above it, 1000 times μ0 I/(2π d)
+	// (Ampère's law for a long straight line, μ0 = 1.25663706212e-6 N/A²,
+	// CODATA 2018 via NIST), I = 20 A RMS at d = 1.1 m below the sensors
+	// (0.8 m deep, the sensor 0.3 m up);
+	// a 0.1 s window walked at 1 m/s lowers it by 0.1% at most.
+	var fieldWarn string
+	for _, w := range volts.Warnings {
+		if strings.Contains(w, "after the coil's conversion") {
+			fieldWarn = w
+		}
+	}
+	_, at, ok := strings.Cut(fieldWarn, "reaches ")
+	if !ok {
+		t.Fatalf("no field warning for a log in mV read as volts: %q", volts.Warnings)
+	}
+	var mT float64
+	if _, err := fmt.Sscanf(at, "%g mT RMS", &mT); err != nil {
+		t.Fatalf("no field warning for a log in mV read as volts, or none in mT: %q (%v)", fieldWarn, err)
+	}
+	crossings := sc.Crossings()
+	// The cable's depth below the ground plus the sensor's height.
+	d := crossings[0].Depth + sc.Sensor.Height
+	want := 1000 * 1.25663706212e-6 / (2 * math.Pi) * math.Abs(crossings[0].Current) / d * 1e3 // mT
+	if math.Abs(mT-want) > 0.01*want {
+		t.Errorf("the warning gives %g mT, want %.4g (Ampère's law)", mT, want)
+	}
+	for _, w := range []string{"over 1 mT", "read in V (no unit given: volts)", "--coil " + coilSpec, "a unit or a coil constant is probably wrong"} {
+		if !strings.Contains(fieldWarn, w) {
+			t.Errorf("field warning %q does not say %q", fieldWarn, w)
+		}
+	}
 
 	// The magnetometer's own log given as a coil's draws the steady-part
 	// warning.
@@ -388,6 +467,27 @@ func TestLocateCoilResponse(t *testing.T) {
 	writeCoilResponse(t, wrong, 1.25, 10)
 	doc = locateCoil(t, append(base, "--coil-response", wrong, coilLog)...)
 	checkCoilTruth(t, doc, sc, 0.8, -10)
+
+	// The table's V/nT numbers under the heading sensitivity_v_per_t make
+	// the field a thousand million times too large, some hundreds of
+	// tesla, far above 0.1 T: refused.
+	raw, err := os.ReadFile(table)
+	if err != nil {
+		t.Fatal(err)
+	}
+	vpt := filepath.Join(dir, "vpt.csv")
+	if err := os.WriteFile(vpt, []byte(strings.Replace(string(raw), "sensitivity_v_per_nt", "sensitivity_v_per_t", 1)), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	code, _, stderr := cli(t, append(append([]string{"locate"}, base...), "--coil-response", vpt, coilLog)...)
+	for _, w := range []string{coilLog + ": after the coil's conversion", " T RMS (the median of the windows), above 0.1 T", "vpt.csv (--coil-response)", "Refused"} {
+		if !strings.Contains(stderr, w) {
+			t.Errorf("table in V/nT headed V/T: message %q does not say %q", stderr, w)
+		}
+	}
+	if code != 1 {
+		t.Errorf("table in V/nT headed V/T: exit %d, want 1", code)
+	}
 }
 
 // TestLocateCoilRefusals: what a coil log cannot take is refused before
@@ -410,6 +510,9 @@ func TestLocateCoilRefusals(t *testing.T) {
 		{"volts without a coil", []string{"locate", "--freq", "50", "--unit", "bx=mV,by=mV,bz=mV", log}, []string{"--unit bx=mV is a voltage", "--coil"}},
 		{"volts in inspect", []string{"inspect", "--unit", "bz=uV", log}, []string{"--unit bz=uV is a voltage", "only locate"}},
 		{"field unit with a coil", []string{"locate", "--freq", "50", "--coil", coilSpec, "--unit", "bx=nT", log}, []string{"--unit bx=nT", "V, mV, uV or nV"}},
+		{"a unit for one column", []string{"locate", "--freq", "50", "--coil", coilSpec, "--unit", "bx=mV", log}, []string{"--unit: ", "bx in mV (--unit), by in V (no unit given), bz in V (no unit given)", "--unit bx=mV,by=mV,bz=mV"}},
+		{"two voltage units", []string{"locate", "--freq", "50", "--coil", coilSpec, "--unit", "bx=mV,by=mV,bz=uV", log}, []string{"--unit: ", "bz in uV (--unit)", "same unit"}},
+		{"a named unit for one column", []string{"locate", "--freq", "50", "--coil", coilSpec, "--column", "bx=coil_x_mV", log}, []string{"--column: ", "bx in mV (--column bx=coil_x_mV), by in V (no unit given)"}},
 		{"column named in nT with a coil", []string{"locate", "--freq", "50", "--coil", coilSpec, "--column", "bx=Bx_nT", log}, []string{"--column bx=Bx_nT", "says nT"}},
 		{"unknown key", []string{"locate", "--freq", "50", "--coil", "turns=4000,aera=3e-4", log}, []string{`unknown key "aera"`}},
 		{"not a number", []string{"locate", "--freq", "50", "--coil", "turns=many,area=3e-4", log}, []string{`turns="many" is not a number`}},
@@ -434,16 +537,175 @@ func TestLocateCoilRefusals(t *testing.T) {
 			}
 		})
 	}
-	// A response table that does not reach the survey's frequency is an
-	// error of the run, naming the table's range.
+	// A response table that does not reach the survey's frequency is
+	// refused before any log is read (the log here is not even a coil
+	// log), naming the flag, the table and its range.
 	narrow := filepath.Join(dir, "narrow.csv")
 	if err := os.WriteFile(narrow, []byte("frequency_hz,sensitivity_v_per_t,phase_deg\n400,1,-90\n600,1.5,-90\n"), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	sc := []string{"locate", "--freq", "50", "--window", "0.1", "--coil-response", narrow}
-	_, _, coilLog := coilWalk(t, dir)
-	code, _, stderr := cli(t, append(sc, coilLog)...)
-	if code != 1 || !strings.Contains(stderr, "outside the table's 400-600 Hz") {
+	code, _, stderr := cli(t, "locate", "--freq", "50", "--window", "0.1", "--coil-response", narrow, log)
+	if code != 2 || !strings.Contains(stderr, "--coil-response "+narrow+": the table covers 400-600 Hz") || !strings.Contains(stderr, "--freq 50 Hz") {
 		t.Errorf("a table without 50 Hz: exit %d, %s", code, stderr)
 	}
+	// A missing table names the flag.
+	code, _, stderr = cli(t, "locate", "--freq", "50", "--coil-response", filepath.Join(dir, "absent.csv"), log)
+	if code != 2 || !strings.Contains(stderr, "--coil-response "+filepath.Join(dir, "absent.csv")+": no such file") {
+		t.Errorf("a missing table: exit %d, %s", code, stderr)
+	}
+}
+
+// TestLocateCoilTableFrequency: a table that covers --freq 50 but not the
+// frequency estimated from a log whose cable runs at 50.05 Hz is refused
+// after the demodulation, naming the log, the estimate to four digits,
+// the table and what to do; without the words of the library ("window 0")
+// or the estimate's full float digits.
+func TestLocateCoilTableFrequency(t *testing.T) {
+	dir := t.TempDir()
+	_, _, coilLog := coilWalkAt(t, dir, 50.05)
+	table := filepath.Join(dir, "upto50.csv")
+	// The test coil's sensitivity N A μ 2π f at 40 and 50 Hz, in V per T.
+	text := "frequency_hz,sensitivity_v_per_t,phase_deg\n"
+	for _, f := range []float64{40, 50} {
+		text += fmt.Sprintf("%g,%.17g,-90\n", f, coilTurns*coilArea*coilMu*2*math.Pi*f)
+	}
+	if err := os.WriteFile(table, []byte(text), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	code, _, stderr := cli(t, "locate", "--freq", "50", "--window", "0.1", "--group-by", "group", "--unit", "bx=mV,by=mV,bz=mV", "--coil-response", table, coilLog)
+	for _, want := range []string{coilLog + ": ", "estimated from the log at 50.05 Hz", "above the coil response table " + table + " (--coil-response)", "40-50 Hz", "add a row above 50 Hz"} {
+		if !strings.Contains(stderr, want) {
+			t.Errorf("message %q does not say %q", stderr, want)
+		}
+	}
+	if code != 1 || strings.Contains(stderr, "window 0") || strings.Contains(stderr, "50.050") {
+		t.Errorf("exit %d (want 1), message %q: internal words or digits", code, stderr)
+	}
+}
+
+// writeBareArrow writes the log at src again as an Arrow IPC file with the
+// canonical columns but without undercurrent's schema metadata, as another
+// program would write a coil log.
+func writeBareArrow(t *testing.T, src, dst string) {
+	t.Helper()
+	s, err := ingest.ReadSamples(src)
+	if err != nil {
+		t.Fatal(err)
+	}
+	r, err := ingest.NewSamplesReader(s, 4096, memory.DefaultAllocator)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer r.Release()
+	bare := arrow.NewSchema(r.Schema().Fields(), nil)
+	f, err := os.Create(dst)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	w, err := ipc.NewFileWriter(f, ipc.WithSchema(bare))
+	if err != nil {
+		t.Fatal(err)
+	}
+	for r.Next() {
+		rec := r.RecordBatch()
+		out := array.NewRecordBatch(bare, rec.Columns(), rec.NumRows())
+		err := w.Write(out)
+		out.Release()
+		if err != nil {
+			t.Fatal(err)
+		}
+	}
+	if err := r.Err(); err != nil {
+		t.Fatal(err)
+	}
+	if err := w.Close(); err != nil {
+		t.Fatal(err)
+	}
+}
+
+// TestLocateCoilFileUnits: a log that gives its own field columns a
+// magnetic unit is refused with a coil, as a --column name in nT is, unless
+// --unit gives the columns' voltage unit: a log in undercurrent's canonical
+// Arrow or Parquet form (nT by that form's definition, said by its schema
+// metadata), a CSV log whose field columns are found by names ending in a
+// field unit, and an IAGA-2002 file. An Arrow log without that metadata is
+// read as volts, as a CSV log is.
+func TestLocateCoilFileUnits(t *testing.T) {
+	dir := t.TempDir()
+	_, fieldLog, coilLog := coilWalk(t, dir)
+	args := []string{"locate", "--freq", "50", "--window", "0.1", "--group-by", "group", "--reference-z", "0", "--coil", coilSpec}
+	refused := func(what, log string, want ...string) {
+		t.Helper()
+		code, _, stderr := cli(t, append(append([]string(nil), args...), log)...)
+		if code != 2 {
+			t.Errorf("%s: exit %d, want 2 (usage)\n%s", what, code, stderr)
+		}
+		for _, w := range append(want, "--unit bx=V,by=V,bz=V") {
+			if !strings.Contains(stderr, w) {
+				t.Errorf("%s: message %q does not say %q", what, stderr, w)
+			}
+		}
+	}
+	for _, ext := range []string{".arrow", ".arrows", ".parquet"} {
+		p := filepath.Join(dir, "field"+ext)
+		s, err := ingest.ReadSamples(fieldLog)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if err := ingest.WriteSamples(p, s); err != nil {
+			t.Fatal(err)
+		}
+		refused("magnetometer log "+ext, p, "undercurrent.frame", "in nT")
+	}
+	// The coil's own log converted by undercurrent into its canonical form
+	// says nT too; with --unit it is read as given, as the CSV is.
+	s, err := ingest.ReadSamples(coilLog)
+	if err != nil {
+		t.Fatal(err)
+	}
+	canon := filepath.Join(dir, "coil.parquet")
+	if err := ingest.WriteSamples(canon, s); err != nil {
+		t.Fatal(err)
+	}
+	refused("coil log in canonical form", canon, "undercurrent.frame")
+	mv := append(append([]string(nil), args...), "--json", "--unit", "bx=mV,by=mV,bz=mV")
+	var fromCSV, fromCanon, fromBare coilDoc
+	for _, c := range []struct {
+		log string
+		doc *coilDoc
+	}{{coilLog, &fromCSV}, {canon, &fromCanon}} {
+		if err := json.Unmarshal([]byte(mustCLI(t, append(mv, c.log)...)), c.doc); err != nil {
+			t.Fatal(err)
+		}
+	}
+	sameFits(t, "canonical Parquet with --unit", &fromCanon, &fromCSV, 1e-9)
+	// Without the metadata an Arrow log's bare bx, by, bz are volts.
+	bare := filepath.Join(dir, "coil-bare.arrow")
+	writeBareArrow(t, coilLog, bare)
+	volts := append(append([]string(nil), args...), "--json")
+	if err := json.Unmarshal([]byte(mustCLI(t, append(volts, bare)...)), &fromBare); err != nil {
+		t.Fatal(err)
+	}
+	if err := json.Unmarshal([]byte(mustCLI(t, append(volts, coilLog)...)), &fromCSV); err != nil {
+		t.Fatal(err)
+	}
+	sameFits(t, "Arrow without metadata, as volts", &fromBare, &fromCSV, 1e-9)
+
+	// Field columns found by their names, which end in nT.
+	raw, err := os.ReadFile(fieldLog)
+	if err != nil {
+		t.Fatal(err)
+	}
+	text := strings.Replace(string(raw), "\ntime,x,y,z,bx,by,bz,", "\ntime,x,y,z,Bx_nT,By (nT),Bz[nT],", 1)
+	if text == string(raw) {
+		t.Fatal("the field log's header is not time,x,y,z,bx,by,bz,...")
+	}
+	named := filepath.Join(dir, "field-named.csv")
+	if err := os.WriteFile(named, []byte(text), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	refused("columns named in nT", named, "the column Bx_nT (read as bx) is named in nT")
+
+	refused("IAGA-2002", ingestIAGA(t, "bou20141101vmin.min"), "IAGA-2002", "in nT")
 }

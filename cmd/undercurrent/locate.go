@@ -188,7 +188,12 @@ func (o *locateOptions) check(fs *pflag.FlagSet) error {
 	if fs != nil {
 		fs.Visit(func(f *pflag.Flag) {
 			if f.Name != "json" && f.Name != "output" && f.Name != "workers" {
-				o.given[f.Name] = f.Value.String()
+				v := f.Value.String()
+				if sl, ok := f.Value.(pflag.SliceValue); ok {
+					// "bx=mV,by=mV", not the slice's "[bx=mV,by=mV]".
+					v = strings.Join(sl.GetSlice(), ",")
+				}
+				o.given[f.Name] = v
 			}
 		})
 	}
@@ -245,17 +250,24 @@ field's unit.
 With --coil turns=N,area=A[,mu=M] (or --coil-response FILE, a measured
 response) the field columns hold the voltages of induction coils, one per
 axis, in volts unless --unit says otherwise (bx=mV,by=mV,bz=mV; V, mV, uV
-or nV; a voltage unit without a coil is refused). A coil senses only a
-changing field, so it needs --freq, and it takes neither --calibration nor
---base. The voltages are demodulated as a field would be and each window
+or nV, one unit for all three; a voltage unit without a coil is refused).
+A log that gives its field columns a field unit itself (names such as
+Bx_nT, an IAGA-2002 file, or an Arrow or Parquet file in undercurrent's
+own form, whose metadata says nT) is refused unless --unit gives their
+voltage unit. A response table that does not cover --freq is refused
+before any log is read. A coil senses only a changing field, so it needs
+--freq, and it takes neither --calibration nor --base. The voltages are demodulated as a field would be and each window
 is then converted to field at its own frequency, its sigma too, before
 the fit: by Faraday's law V = -N A μ dB/dt, B = i V/(N A μ ω) (area in m²,
 mu the core's apparent relative permeability, default 1), or by the
 response table interpolated there. The Earth-field check above does not
 apply to volts; a log whose columns hold a steady value over 20 times
 their variation (a magnetometer's log given as a coil's) draws a warning
-instead. The coil and its parameters are recorded as the run's calibration
-in the result document and the report.
+instead, and after the conversion the AC field is checked: a window over
+1 mT (5000 A at 1 m) draws a warning, a median over 0.1 T is refused (a
+unit or a coil constant is wrong). The coil and its parameters (and its
+sensitivity and phase at the survey frequency) are recorded as the run's
+calibration in the result document and the report.
 
 Without --group-by every reading is fitted as one straight conductor with
 one current. When a log has a group column whose groups are traverses, or
@@ -414,7 +426,7 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		doc.Calibration = &report.Correction{File: o.calibration, Summary: cal.Summary()}
 		doc.Inputs = append(doc.Inputs, fileInput("calibration", o.calibration, 0))
 	}
-	if err := o.coil.load(doc); err != nil {
+	if err := o.coil.load(doc, o.freq); err != nil {
 		return nil, err
 	}
 	var base *ingest.Samples
@@ -444,6 +456,12 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 	index := map[string]*group{}
 	var baseNotes []string
 	for _, path := range logs {
+		if o.coil.on() {
+			// A field unit the log gives its own field columns.
+			if err := o.coil.checkLog(path, opts); err != nil {
+				return nil, err
+			}
+		}
 		// A coil log's voltages are not checked against the Earth's field.
 		s, warns, err := o.read.readLog(ctx, path, opts, !o.coil.on())
 		sv.warnings = append(sv.warnings, warns...)
@@ -531,7 +549,7 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		doc.BaseStation = &report.Correction{File: o.base, Summary: strings.Join(baseNotes, "; ")}
 	}
 	if o.coil.on() {
-		doc.Calibration = &report.Correction{File: o.coil.response, Summary: o.coil.summary(doc.Signal.FrequencyHz)}
+		doc.Calibration = o.coil.correction(doc.Signal.FrequencyHz)
 	}
 	if len(sv.groups) == 0 {
 		return nil, errors.New("no readings to fit")
@@ -603,8 +621,15 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 	if o.coil.on() {
 		// The windows hold the coils' voltages: field from here on, each
 		// window converted at its own frequency.
-		if err := o.coil.convert(res.Windows); err != nil {
-			return fmt.Errorf("%s: %w", s.Source, err)
+		if err := o.coil.convert(s.Source, res.Windows); err != nil {
+			return err
+		}
+		w, err := o.coil.fieldCheck(s.Source, res.Windows)
+		if err != nil {
+			return err
+		}
+		if w != "" {
+			sv.alerts = append(sv.alerts, w)
 		}
 	}
 	if sv.doc.Signal.WindowS == 0 {
