@@ -107,7 +107,7 @@ Examples:
 				fmt.Fprintf(stderr, "warning: %s: no readings: %s has the columns and no rows\n", in, out)
 			}
 			for _, w := range ingest.Warnings(r) {
-				fmt.Fprintf(stderr, "warning: %s\n", w)
+				fmt.Fprintf(stderr, "warning: %s\n", cliWording(w))
 			}
 			if w, err := checkFieldUnits(ctx, in, cr.bx, cr.by, cr.bz, opts, true); err == nil && w != "" {
 				fmt.Fprintf(stderr, "warning: %s\n", w)
