@@ -18,8 +18,8 @@
 //
 // Every writer validates the document first (Document.Validate) and writes
 // nothing when it is invalid, so a NaN never reaches a file. The writers
-// take an io.Writer; WriteFiles renders all four in memory and then writes
-// results.json, results.csv, route.geojson and report.html atomically into
+// take an io.Writer; WriteFiles renders all five in memory and then writes
+// results.json, results.csv, findings.csv, route.geojson and report.html atomically into
 // a directory, leaving no partial output directory on failure.
 //
 // Build makes a Document from per-group inverse fits (Fit: the readings,

@@ -14,14 +14,15 @@ import (
 
 // The files WriteFiles makes.
 const (
-	FileJSON    = "results.json"
-	FileCSV     = "results.csv"
-	FileGeoJSON = "route.geojson"
-	FileHTML    = "report.html"
+	FileJSON     = "results.json"
+	FileCSV      = "results.csv"
+	FileFindings = "findings.csv"
+	FileGeoJSON  = "route.geojson"
+	FileHTML     = "report.html"
 )
 
-// WriteFiles writes results.json, results.csv, route.geojson and
-// report.html into dir, creating dir (and its parents) when it does not
+// WriteFiles writes results.json, results.csv, findings.csv,
+// route.geojson and report.html into dir, creating dir (and its parents) when it does not
 // exist. Everything is rendered in memory first, so a document that cannot
 // be written leaves the disk untouched; each file is then written atomically
 // (ingest.WriteFileAtomic). If a write fails, the files already written are
@@ -36,6 +37,7 @@ func WriteFiles(dir string, d *Document) error {
 	files := []*out{
 		{name: FileJSON, write: WriteJSON},
 		{name: FileCSV, write: WriteCSV},
+		{name: FileFindings, write: WriteFindingsCSV},
 		{name: FileGeoJSON, write: WriteGeoJSON},
 		{name: FileHTML, write: WriteHTML},
 	}

@@ -132,8 +132,8 @@ func TestWriteFiles(t *testing.T) {
 		t.Errorf("results.json does not read back: %v", err)
 	}
 	entries, _ := os.ReadDir(dir)
-	if len(entries) != 4 {
-		t.Errorf("%d entries in the output directory, want 4 (no temporary files left)", len(entries))
+	if len(entries) != 5 {
+		t.Errorf("%d entries in the output directory, want 5 (no temporary files left)", len(entries))
 	}
 }
 

@@ -526,3 +526,50 @@ func TestPlotLegendBelow(t *testing.T) {
 		}
 	}
 }
+
+// TestWriteFindingsCSV: one row per finding, in the document's order, with
+// the conductor (1 for the route's), the numbers as text and the message;
+// parseable by a CSV reader (encoding/csv) with the header's column count.
+func TestWriteFindingsCSV(t *testing.T) {
+	d := fenwickLane(true)
+	d.Findings = []Finding{
+		{Kind: "current-step", Severity: "warning", ChainageFrom: 90, ChainageTo: 105, Groups: []string{"T07", "T08"},
+			Position: [3]float64{94.437, 53.75, -1.1}, Message: "current falls, here, by \"7.27\" A",
+			Values: []Value{{Name: "step", Value: -7.271, Sigma: 0.918, Unit: "A"}, {Name: "minimum cover", Value: 0.6, Unit: "m"}}},
+		{Kind: "shallow-cover", Severity: "caution", Conductor: 2, ChainageFrom: 45, ChainageTo: 45, Message: "cover"},
+	}
+	if len(d.Conductors) == 0 || d.Conductors[0].Number != 2 {
+		d.Findings = d.Findings[:1]
+	}
+	var buf bytes.Buffer
+	if err := WriteFindingsCSV(&buf, d); err != nil {
+		t.Fatal(err)
+	}
+	rows, err := csv.NewReader(&buf).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(rows) != len(d.Findings)+1 {
+		t.Fatalf("%d rows, want the header and %d", len(rows), len(d.Findings))
+	}
+	col := map[string]int{}
+	for i, h := range rows[0] {
+		col[h] = i
+	}
+	r := rows[1]
+	for name, want := range map[string]string{
+		"severity": "warning", "kind": "current-step", "conductor": "1", "chainage_from_m": "90.000",
+		"groups": "T07 T08", "east_m": "94.437", "values": "step = -7.27 ± 0.92 A; minimum cover = 0.6 m",
+		"message": "current falls, here, by \"7.27\" A",
+	} {
+		if got := r[col[name]]; got != want {
+			t.Errorf("%s = %q, want %q", name, got, want)
+		}
+	}
+	if r[col["lon_deg"]] == "" || r[col["lat_deg"]] == "" {
+		t.Error("a geo-referenced document's finding has no longitude and latitude")
+	}
+	if len(rows) > 2 && rows[2][col["conductor"]] != "2" {
+		t.Errorf("further conductor's finding: conductor %q", rows[2][col["conductor"]])
+	}
+}

@@ -36,8 +36,8 @@ for a while and a buried steel object lies near one traverse.
 
 It then runs locate on the log as a surveyor would (demodulating the 50 Hz
 field, fitting each traverse, building the route) and writes into DIR the log
-(` + demoLog + `), results.json, results.csv, route.geojson and report.html,
-the crew report to open in a browser. DIR is written whole or not at all;
+(` + demoLog + `), results.json, results.csv, findings.csv, route.geojson and
+report.html, the crew report to open in a browser. DIR is written whole or not at all;
 its parent directory must exist (the default's, out, is made).
 
 Examples:

@@ -72,7 +72,7 @@ type locateOptions struct {
 }
 
 // resultFiles are the files locate writes into its output directory.
-var resultFiles = []string{report.FileJSON, report.FileCSV, report.FileGeoJSON, report.FileHTML}
+var resultFiles = []string{report.FileJSON, report.FileCSV, report.FileFindings, report.FileGeoJSON, report.FileHTML}
 
 func (o *locateOptions) setFlags(fs *pflag.FlagSet) {
 	fs.StringVar(&o.calibration, "calibration", "", "apply the sensor calibration in `CAL.json` (from undercurrent calibrate)")
@@ -85,7 +85,7 @@ func (o *locateOptions) setFlags(fs *pflag.FlagSet) {
 	fs.StringVar(&o.count, "count", "auto", "number of line conductors per fit, `N` (1-4) or auto")
 	fs.StringVar(&o.groupBy, "group-by", "", "fit each value of column `COL` separately (a traverse, a sensor, a time window) and build the along-route profile from the groups")
 	fs.BoolVar(&o.json, "json", false, "print the result document (JSON) on stdout")
-	fs.StringVarP(&o.out, "output", "o", "", "write results.json, results.csv, route.geojson and report.html into `DIR`")
+	fs.StringVarP(&o.out, "output", "o", "", "write results.json, results.csv, findings.csv, route.geojson and report.html into `DIR`")
 	fs.Float64Var(&o.minCover, "min-cover", 0, "report cover shallower than `M` metres (needs a ground reference: --sensor-height or --reference-z)")
 	fs.StringVar(&o.coverCode, "cover-code", "", "the code or practice the minimum cover comes from, quoted in the report (\"NEC Table 300.5\")")
 	fs.Float64Var(&o.referenceZ, "reference-z", 0, "report depths below the ground surface at up = `Z` metres, instead of below the sensors' mean height")
@@ -279,7 +279,8 @@ are spikes the run warns and suggests --despike. These warnings come first
 in the summary's, the result document's and the report's warnings.
 
 With -o DIR it writes results.json (the result document), results.csv,
-route.geojson and report.html (the crew report) into DIR; the directory is
+findings.csv (one row per finding), route.geojson and report.html (the crew
+report) into DIR; the directory is
 written whole or not at all, and its parent must exist. An existing DIR
 is replaced only when it holds nothing but those files: a DIR holding any
 other file is refused (a usage error, before any work), so that a mistyped
@@ -1065,7 +1066,7 @@ func stageDir(ctx context.Context, dir string, keep []string, fill func(tmp stri
 	return os.RemoveAll(old)
 }
 
-// writeDocFiles writes the four result files into dir.
+// writeDocFiles writes the result files into dir (resultFiles).
 func writeDocFiles(dir string, doc *report.Document) error {
 	return report.WriteFiles(dir, doc)
 }

@@ -156,7 +156,7 @@ func TestLocateOutputs(t *testing.T) {
 		t.Errorf("want 7 groups printed and written")
 	}
 	got := entries(t, out)
-	if strings.Join(got, ",") != "report.html,results.csv,results.json,route.geojson" {
+	if strings.Join(got, ",") != "findings.csv,report.html,results.csv,results.json,route.geojson" {
 		t.Errorf("output directory holds %v", got)
 	}
 	csv, _ := os.ReadFile(filepath.Join(out, "results.csv"))
