@@ -128,7 +128,7 @@ func (r *CoilResponse) Sensitivity(freq float64) (complex128, error) {
 		return 0, fmt.Errorf("calibrate: coil response: frequency %g Hz must be positive", freq)
 	}
 	if freq < r.Freq[0] || freq > r.Freq[n-1] {
-		return 0, fmt.Errorf("calibrate: coil response: %s Hz is outside the table's %g-%g Hz (the response is not extrapolated)", freqText(freq, r.Freq[0], r.Freq[n-1]), r.Freq[0], r.Freq[n-1])
+		return 0, fmt.Errorf("calibrate: coil response: %s Hz is outside the table's %g-%g Hz (the response is not extrapolated)", FreqText(freq, r.Freq[0], r.Freq[n-1]), r.Freq[0], r.Freq[n-1])
 	}
 	// The first row whose frequency is at or above freq.
 	j := sort.SearchFloat64s(r.Freq, freq)
@@ -142,12 +142,13 @@ func (r *CoilResponse) Sensitivity(freq float64) (complex128, error) {
 	return cmplx.Rect(mag, ph*math.Pi/180), nil
 }
 
-// freqText formats the frequency f in plain notation with four
+// FreqText formats the frequency f in plain notation with four
 // significant digits, or with as many more as it takes to tell it from
-// each of the frequencies edges ("50.05"; "49.998" beside an edge of 50).
-func freqText(f float64, edges ...float64) string {
+// each of the frequencies edges ("50.05"; "49.998" beside an edge of 50),
+// for messages.
+func FreqText(f float64, edges ...float64) string {
 	for d := 4; ; d++ {
-		t := plainDigits(f, d)
+		t := PlainDigits(f, d)
 		clash := false
 		for _, e := range edges {
 			clash = clash || f != e && t == strconv.FormatFloat(e, 'f', -1, 64)
@@ -158,10 +159,10 @@ func freqText(f float64, edges ...float64) string {
 	}
 }
 
-// plainDigits formats x in plain notation (no exponent) rounded to d
-// significant digits: 45238.9 gives "45240" and 0.0452389 "0.04524" with
-// d = 4.
-func plainDigits(x float64, d int) string {
+// PlainDigits formats x in plain notation (no exponent) rounded to d
+// significant digits, for messages: 45238.9 gives "45240" and 0.0452389
+// "0.04524" with d = 4.
+func PlainDigits(x float64, d int) string {
 	if x == 0 || math.IsNaN(x) || math.IsInf(x, 0) {
 		return strconv.FormatFloat(x, 'f', -1, 64)
 	}

@@ -484,44 +484,12 @@ func (c *coilFlags) convert(path string, ws []calibrate.Window) error {
 			side, edge = "above", hi
 		}
 		return fmt.Errorf("%s: the signal's frequency, estimated from the log at %s Hz, lies %s the coil response table %s (--coil-response), which covers %g-%g Hz, and the response is not extrapolated: add a row %s %g Hz to the table (the frequency drifts a little about --freq), or check that --freq is the frequency the log holds",
-			path, freqText(w.Freq, lo, hi), side, c.response, lo, hi, side, edge)
+			path, calibrate.FreqText(w.Freq, lo, hi), side, c.response, lo, hi, side, edge)
 	}
 	if err := calibrate.SensitivityWindows(ws, t); err != nil {
 		return fmt.Errorf("%s: %w", path, err)
 	}
 	return nil
-}
-
-// freqText formats the frequency f in plain notation with four
-// significant digits, or with as many more as it takes to tell it from
-// each of the frequencies edges ("50.05"; "49.998" beside an edge of 50).
-func freqText(f float64, edges ...float64) string {
-	for d := 4; ; d++ {
-		t := plainDigits(f, d)
-		clash := false
-		for _, e := range edges {
-			clash = clash || f != e && t == strconv.FormatFloat(e, 'f', -1, 64)
-		}
-		if !clash || d >= 15 {
-			return t
-		}
-	}
-}
-
-// plainDigits formats x in plain notation (no exponent) rounded to d
-// significant digits: 45238.9 gives "45240" and 0.0452389 "0.04524" with
-// d = 4.
-func plainDigits(x float64, d int) string {
-	if x == 0 || math.IsNaN(x) || math.IsInf(x, 0) {
-		return strconv.FormatFloat(x, 'f', -1, 64)
-	}
-	dec := max(0, d-1-int(math.Floor(math.Log10(math.Abs(x)))))
-	r, _ := strconv.ParseFloat(strconv.FormatFloat(x, 'g', d, 64), 64)
-	t := strconv.FormatFloat(r, 'f', dec, 64)
-	if strings.Contains(t, ".") {
-		t = strings.TrimRight(strings.TrimRight(t, "0"), ".")
-	}
-	return t
 }
 
 // The AC field of a buried conductor at the sensors, RMS: a cable's field
@@ -578,13 +546,13 @@ func sq(x float64) float64 { return x * x }
 func teslaText(nT float64) string {
 	switch a := math.Abs(nT); {
 	case a >= 1e9:
-		return plainDigits(nT*1e-9, 3) + " T"
+		return calibrate.PlainDigits(nT*1e-9, 3) + " T"
 	case a >= 1e6:
-		return plainDigits(nT*1e-6, 3) + " mT"
+		return calibrate.PlainDigits(nT*1e-6, 3) + " mT"
 	case a >= 1e3:
-		return plainDigits(nT*1e-3, 3) + " µT"
+		return calibrate.PlainDigits(nT*1e-3, 3) + " µT"
 	}
-	return plainDigits(nT, 3) + " nT"
+	return calibrate.PlainDigits(nT, 3) + " nT"
 }
 
 // unitSource says where the field columns' unit came from, for messages.
@@ -621,7 +589,7 @@ func (c *coilFlags) summary(freq float64) string {
 	at := ""
 	if h, err := c.sensitivity().Sensitivity(freq); err == nil {
 		at = fmt.Sprintf("; at %s Hz the coil gives %s V/T (%s mV/nT), the voltage's phase %.1f° from the field's",
-			plainDigits(freq, 4), plainDigits(cmplx.Abs(h), 4), plainDigits(cmplx.Abs(h)*1e-6, 4), cmplx.Phase(h)*180/math.Pi)
+			calibrate.PlainDigits(freq, 4), calibrate.PlainDigits(cmplx.Abs(h), 4), calibrate.PlainDigits(cmplx.Abs(h)*1e-6, 4), cmplx.Phase(h)*180/math.Pi)
 	}
 	if c.ideal != nil {
 		mu := c.ideal.Mu
