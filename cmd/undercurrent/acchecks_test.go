@@ -88,8 +88,15 @@ func acWalk(t *testing.T, dir, freq, extra string, oneWay bool) (*simulate.Scena
 // locateDoc runs locate --json with args and decodes the document.
 func locateDoc(t *testing.T, args ...string) *resultDoc {
 	t.Helper()
+	return locateInto[resultDoc](t, args...)
+}
+
+// locateInto runs locate --json with args and decodes the document into a
+// T (the fields a test reads).
+func locateInto[T any](t *testing.T, args ...string) *T {
+	t.Helper()
 	out := mustCLI(t, append([]string{"locate", "--json"}, args...)...)
-	var doc resultDoc
+	var doc T
 	if err := json.Unmarshal([]byte(out), &doc); err != nil {
 		t.Fatalf("locate --json output is not JSON: %v\n%.500s", err, out)
 	}

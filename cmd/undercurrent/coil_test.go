@@ -66,12 +66,7 @@ type coilDoc struct {
 // locateCoil runs locate --json with args and decodes the document.
 func locateCoil(t *testing.T, args ...string) *coilDoc {
 	t.Helper()
-	out := mustCLI(t, append([]string{"locate", "--json"}, args...)...)
-	var doc coilDoc
-	if err := json.Unmarshal([]byte(out), &doc); err != nil {
-		t.Fatalf("locate --json output is not JSON: %v\n%.500s", err, out)
-	}
-	return &doc
+	return locateInto[coilDoc](t, args...)
 }
 
 // coilWalk simulates the AC walk (testdata/scenarios/ac-walk-2khz.toml:
