@@ -764,10 +764,11 @@ func fillSlope(sc, ss, cs, sn, tau []float64) {
 // its fundamental, third and fifth harmonics and the odd harmonics next
 // above and below freq (a mains field is rich in odd harmonics, and
 // those nearest the signal leak into it most), in increasing order,
-// leaving out those at or above 0.45 fs, those within 1/window of freq
-// or of the harmonics of it to be fitted (which the window cannot tell
-// apart: DemodSettings.Harmonics), and repeats within 1/window of one
-// already taken. Nil when freq is itself a mains frequency.
+// leaving out those at or above 0.45 fs, those within NuisanceSeparation
+// of freq or of the harmonics of it to be fitted (DemodSettings.Harmonics),
+// and repeats within 1/window of one already taken (nuisance tones need
+// only span the mains, not be told apart). Nil when freq is itself a
+// mains frequency.
 func MainsNuisance(freq, window, fs float64, mains []float64, harmonics []int) []float64 {
 	var cand []float64
 	for _, m := range mains {
@@ -790,14 +791,15 @@ func MainsNuisance(freq, window, fs float64, mains []float64, harmonics []int) [
 		}
 	}
 	sort.Float64s(cand)
-	sep := 1 / window
+	sep := NuisanceSeparation(window)
 	var out []float64
 	for _, f := range cand {
+		f = math.Round(f*1e9) / 1e9 // 3 x 16.7 is 50.1, not 50.099999999999994
 		ok := f < 0.45*fs && math.Abs(f-freq) >= sep
 		for _, h := range harmonics {
 			ok = ok && math.Abs(f-float64(h)*freq) >= sep
 		}
-		if ok && len(out) > 0 && f-out[len(out)-1] < sep {
+		if ok && len(out) > 0 && f-out[len(out)-1] < 1/window {
 			ok = false
 		}
 		if ok {
@@ -806,6 +808,17 @@ func MainsNuisance(freq, window, fs float64, mains []float64, harmonics []int) [
 	}
 	return out
 }
+
+// NuisanceSeparation is the least distance, Hz, between a nuisance
+// frequency and the signal (or another nuisance) at which MainsNuisance
+// fits it in windows of window seconds: 2/window. Over a window of T
+// seconds two tones 1/T apart are orthogonal only when steady; each
+// nuisance frequency also takes its slope columns, whose spectrum spreads
+// about 1/T either side, and one at 1.1/T from a 128 Hz tracer in 0.05 s
+// windows tripled the tracer's sigma (found in review). Closer than this
+// a mains line cannot be fitted apart from the signal: a longer window is
+// the remedy.
+func NuisanceSeparation(window float64) float64 { return 2 / window }
 
 // fillNuisance fills the columns of the nuisance frequencies freqs (Hz) at
 // the window's local times tau: cos and sin of each, then, with slope,

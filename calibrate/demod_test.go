@@ -598,6 +598,10 @@ func TestMainsNuisance(t *testing.T) {
 		// within 1/window of 3 x 16.7 = 50.1 Hz and left out.
 		{16.7, 0.6, 500, []float64{50, 60}, []int{3}, "[60 150 180]"},
 		{16.7, 0.6, 500, []float64{50, 60}, nil, "[50 60 150 180]"},
+		// 128 Hz in 0.05 s windows: 150 Hz lies 22 Hz off, under
+		// NuisanceSeparation (40 Hz), and is left to leak rather than
+		// fitted at the tracer's expense; 60 Hz is within 1/window of 50.
+		{128, 0.05, 2000, []float64{50, 60}, nil, "[50 180 250 300]"},
 		// The mains themselves: nothing.
 		{50, 0.1, 2000, []float64{50, 60}, nil, "[]"},
 		{60, 0.1, 2000, []float64{50, 60}, nil, "[]"},

@@ -84,7 +84,7 @@ func defaultWindow(freq float64) float64 {
 	// (DEVELOPERS.md, known limits); whole signal cycles instead let the
 	// mains leak in as worse phantoms beside a tracer.
 	n := math.Ceil(w/mainsWindowStep - 1e-9)
-	return n * mainsWindowStep
+	return math.Round(n*mainsWindowStep*1e9) / 1e9 // 0.6, not 0.6000000000000001
 }
 
 // freqEstimate is the field's frequency estimated from the windows.
@@ -251,6 +251,68 @@ func (pl demodPlan) settings(freq, win float64, h []int) *calibrate.DemodSetting
 	return set
 }
 
+// nearestMains returns the odd harmonic h of the mains frequency m (of
+// pl.mains, below 0.45 of the sample rate) nearest f; false with no mains.
+func (pl demodPlan) nearestMains(f float64) (h, m float64, ok bool) {
+	best := math.Inf(1)
+	for _, mm := range pl.mains {
+		for hh := 1.0; hh*mm < 0.45*pl.fs || hh == 1; hh += 2 {
+			if d := math.Abs(f - hh*mm); d < best {
+				best, h, m, ok = d, hh, mm, true
+			}
+		}
+	}
+	return h, m, ok
+}
+
+// clash warns when the signal at freq lies on a mains line, or closer to
+// one than windows of win seconds can fit apart
+// (calibrate.NuisanceSeparation): that line is not fitted and leaks into
+// the signal. "" when it does not, freq is itself a mains frequency or no
+// mains are fitted.
+func (pl demodPlan) clash(freq, win float64) string {
+	h, m, ok := pl.nearestMains(freq)
+	if !ok || calibrate.MainsNuisance(freq, win, pl.fs, pl.mains, nil) == nil {
+		return ""
+	}
+	d := math.Abs(freq - h*m)
+	sep := calibrate.NuisanceSeparation(win)
+	switch {
+	case d < 1e-9*freq:
+		return fmt.Sprintf("the signal's %g Hz is the %s of the %g Hz mains: a mains field there and the signal cannot be told apart, and its current will be read as the signal's; choose another frequency for the tracer if a mains field is near", freq, harmonicName(h), m)
+	case d < sep:
+		return fmt.Sprintf("the signal's %g Hz lies %.3g Hz from the %s of the %g Hz mains (%g Hz), closer than %.3g s windows can fit apart (%.3g Hz): a mains field there is not fitted and leaks into the signal as noise or phantom conductors; use --window %.1f or longer",
+			freq, d, harmonicName(h), m, h*m, win, sep, math.Ceil(10*calibrate.NuisanceSeparation(1)/d)/10)
+	}
+	return ""
+}
+
+// apart returns the harmonics of h whose frequencies (times freq) lie at
+// least calibrate.NuisanceSeparation from every odd mains harmonic.
+func (pl demodPlan) apart(freq, win float64, h []int) []int {
+	var out []int
+	for _, k := range h {
+		hh, m, ok := pl.nearestMains(float64(k) * freq)
+		if !ok || math.Abs(float64(k)*freq-hh*m) >= calibrate.NuisanceSeparation(win) {
+			out = append(out, k)
+		}
+	}
+	return out
+}
+
+// harmonicName names harmonic h: "fundamental", "3rd harmonic", ...
+func harmonicName(h float64) string {
+	switch h {
+	case 1:
+		return "fundamental"
+	case 2:
+		return "2nd harmonic"
+	case 3:
+		return "3rd harmonic"
+	}
+	return fmt.Sprintf("%gth harmonic", h)
+}
+
 // logRate is the sample rate of s, Hz: the reciprocal of the median
 // positive time step among the first 4096; 0 when there is none.
 func logRate(s *ingest.Samples) float64 {
@@ -281,6 +343,9 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 	if err != nil {
 		return nil, 0, nil, err
 	}
+	if w := pl.clash(o.freq, win); w != "" {
+		res.Warnings = append([]string{w}, res.Warnings...)
+	}
 	if len(res.Windows) == 0 {
 		return res, win, res.Warnings, nil
 	}
@@ -291,6 +356,9 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 	// are left out.
 	var fit *calibrate.DemodResult
 	for _, h := range [][]int{{3, 5}, {3}, nil} {
+		// A harmonic of the signal on a mains line (3 x 16.7 = 50.1 Hz)
+		// would push that line out of the nuisance: the harmonic goes.
+		h = pl.apart(o.freq, win, h)
 		set := pl.settings(o.freq, win, h)
 		set.EstimateFreq = true
 		fit, err = calibrate.Demodulate(s, set)
@@ -326,7 +394,14 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 	// Beyond about a quarter of 1/window from --freq the windows' fits no
 	// longer converge reliably; an estimate out there is not to be trusted.
 	if math.Abs(off) > 0.25/win {
-		return nil, 0, nil, fmt.Errorf("%s: the AC field does not run at the %g Hz given: the windows' fitted frequencies average %.3f Hz, too far off for a %.3g s window to follow; give the field's frequency with --freq (about %.2f Hz)", s.Source, o.freq, est.freq, win, est.freq)
+		hint := ""
+		if h, m, ok := pl.nearestMains(est.freq); ok && math.Abs(est.freq-h*m) < 0.25/win {
+			hint = fmt.Sprintf("; that is the mains (the %s of %g Hz): a field at %g Hz too weak beside it", harmonicName(h), m, o.freq)
+			if d := math.Abs(o.freq - h*m); d > 1e-9*o.freq {
+				hint += fmt.Sprintf(", or a window too short to tell them apart (try --window %.1f or longer)", math.Ceil(10*calibrate.NuisanceSeparation(1)/d)/10)
+			}
+		}
+		return nil, 0, nil, fmt.Errorf("%s: the AC field does not run at the %g Hz given: the windows' fitted frequencies average %.3f Hz, too far off for a %.3g s window to follow; give the field's frequency with --freq (about %.2f Hz)%s", s.Source, o.freq, est.freq, win, est.freq, hint)
 	}
 	// A window of whole cycles of --freq becomes the nearest whole number
 	// of cycles of the estimate: the windows' phasors are the path averages

@@ -128,6 +128,9 @@ func (o *locateOptions) check(fs *pflag.FlagSet) error {
 		return err
 	}
 	o.mains = mains
+	if fs != nil && fs.Changed("mains") && o.freq == 0 {
+		return usageErrorf("--mains needs --freq: the mains are fitted beside an AC signal")
+	}
 	if o.window != 0 && o.freq == 0 {
 		return usageErrorf("--window needs --freq: windows are for AC demodulation")
 	}
@@ -1106,7 +1109,7 @@ func minStepFraction(pct float64) float64 {
 // parseMains reads --mains: a comma-separated list of mains frequencies
 // (Hz), or none; empty (options made in code) is the default, 50,60.
 func parseMains(text string) ([]float64, error) {
-	switch strings.TrimSpace(text) {
+	switch strings.ToLower(strings.TrimSpace(text)) {
 	case "none":
 		return nil, nil
 	case "":
