@@ -161,8 +161,8 @@ func BaseCorrectColumns(roverName string, rt []float64, rb [3][]float64, baseNam
 				}
 			}
 		}
-		return nil, fmt.Errorf("calibrate: base correction: base record %s (%s to %s) does not cover the rover log %s (%s to %s): %d of %d rows, the first at row %d (%s), lie more than %g s outside it, where the base's nearest value held is no correction; give a base record that covers the survey, or allow the hold (locate --base-hold SECONDS)",
-			baseName, fmtTime(blo), fmtTime(bhi), roverName, fmtTime(rlo), fmtTime(rhi), far, len(rt), first, fmtTime(rt[first]), maxHold)
+		return nil, fmt.Errorf("calibrate: base correction: base record %s (%s to %s) does not cover the rover log %s (%s to %s): %d of %d readings, the first at %s, lie more than %g s outside it, where the base's nearest value held is no correction; give a base record that covers the survey, or allow the hold (locate --base-hold SECONDS)",
+			baseName, fmtTime(blo), fmtTime(bhi), roverName, fmtTime(rlo), fmtTime(rhi), far, len(rt), fmtTime(rt[first]), math.Round(maxHold*1e6)/1e6)
 	}
 
 	var lo, hi [3]float64

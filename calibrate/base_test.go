@@ -91,7 +91,7 @@ func TestBaseCorrectBoulderPartial(t *testing.T) {
 	rover.By = make([]float64, len(rover.Time))
 	rover.Bz = make([]float64, len(rover.Time))
 	if _, err := BaseCorrect(rover, base, &BaseSettings{RefMode: "first"}); err == nil ||
-		!strings.Contains(err.Error(), "56 of 120 rows, the first at row 64 (2014-11-02T00:04:30Z), lie more than 300 s outside it") ||
+		!strings.Contains(err.Error(), "56 of 120 readings, the first at 2014-11-02T00:04:30Z, lie more than 300 s outside it") ||
 		!strings.Contains(err.Error(), "--base-hold") {
 		t.Errorf("err = %v, want the rows beyond five base intervals (300 s) refused", err)
 	}

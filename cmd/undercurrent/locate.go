@@ -32,6 +32,7 @@ type locateOptions struct {
 	calibration  string
 	base         string
 	baseHold     float64
+	baseHoldSet  bool // --base-hold given (0 then means no hold at all)
 	freq         float64
 	window       float64
 	mainsText    string
@@ -77,7 +78,7 @@ var resultFiles = []string{report.FileJSON, report.FileCSV, report.FileFindings,
 func (o *locateOptions) setFlags(fs *pflag.FlagSet) {
 	fs.StringVar(&o.calibration, "calibration", "", "apply the sensor calibration in `CAL.json` (from undercurrent calibrate)")
 	fs.StringVar(&o.base, "base", "", "subtract the diurnal variation recorded by the base station log `BASE` (any log format, IAGA-2002 too)")
-	fs.Float64Var(&o.baseHold, "base-hold", 0, "correct survey readings up to `S` seconds before or after the base log with its nearest value held (default: five base sample intervals; readings further out are refused, since a held value is no correction)")
+	fs.Float64Var(&o.baseHold, "base-hold", 0, "correct survey readings up to `S` seconds before or after the base log with its nearest value held (default: five base sample intervals; 0: none; readings further out are refused, since a held value is no correction)")
 	fs.Float64Var(&o.freq, "freq", 0, "demodulate the AC field at `HZ` (50, 60, 16.7, 512...) and fit RMS currents with phase; the field's own frequency is then estimated from the log, and if it is off (a grid at 50.1 Hz) the log is demodulated at the estimate, with a warning saying so (too far off, it refuses and names the frequency found); without --freq the DC field is fitted (no frequency is estimated and AC is not looked for)")
 	fs.StringVar(&o.mainsText, "mains", "50,60", "with --freq at another frequency than the mains (an injected tracer, 16.7 Hz), fit the mains `HZ` (50, 60, both as 50,60, or none) and their odd harmonics alongside in every window, so that a strong mains field changing as the sensor walks does not leak into the signal as noise")
 	fs.Float64Var(&o.window, "window", 0, "AC demodulation window, `S` seconds (default: ten cycles at 50 or 60 Hz; at any other frequency ten cycles or 0.1 s, whichever is longer, rounded up to a multiple of 0.1 s, so that the window holds whole cycles of the 50 or 60 Hz mains and they do not leak in)")
@@ -114,10 +115,11 @@ func (o *locateOptions) check(fs *pflag.FlagSet) error {
 		}
 		o.nCount = n
 	}
+	o.baseHoldSet = fs != nil && fs.Changed("base-hold")
 	if o.baseHold < 0 || math.IsNaN(o.baseHold) {
 		return usageErrorf("--base-hold %g: want a time in seconds >= 0", o.baseHold)
 	}
-	if o.baseHold != 0 && o.base == "" {
+	if o.baseHoldSet && o.base == "" {
 		return usageErrorf("--base-hold needs --base")
 	}
 	if o.freq < 0 || math.IsNaN(o.freq) || math.IsInf(o.freq, 0) {
@@ -528,7 +530,11 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			}
 		}
 		if base != nil {
-			rep, err := calibrate.BaseCorrect(s, base, &calibrate.BaseSettings{MaxHold: o.baseHold})
+			hold := 0.0 // the default: five base sample intervals
+			if o.baseHoldSet {
+				hold = math.Max(o.baseHold, 1e-9) // 0: none at all
+			}
+			rep, err := calibrate.BaseCorrect(s, base, &calibrate.BaseSettings{MaxHold: hold})
 			if err != nil {
 				return nil, err
 			}

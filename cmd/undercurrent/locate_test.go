@@ -82,6 +82,7 @@ func TestLocateBadInput(t *testing.T) {
 		{"negative ground sigma", []string{"--sensor-height", "0.3", "--ground-sigma", "-0.02", good}, 2, []string{"--ground-sigma -0.02"}},
 		{"negative min step", []string{"--min-step", "-1", good}, 2, []string{"--min-step -1"}},
 		{"base hold without base", []string{"--base-hold", "60", good}, 2, []string{"--base-hold needs --base"}},
+		{"zero base hold without base", []string{"--base-hold", "0", good}, 2, []string{"--base-hold needs --base"}},
 		{"negative base hold", []string{"--base-hold", "-1", good}, 2, []string{"--base-hold -1"}},
 		{"bad mains", []string{"--freq", "512", "--mains", "fifty", good}, 2, []string{`--mains "fifty"`}},
 		{"min step of the whole current", []string{"--min-step", "100", good}, 2, []string{"--min-step 100"}},
