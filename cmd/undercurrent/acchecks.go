@@ -416,7 +416,7 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 	if err != nil {
 		return nil, 0, nil, err
 	}
-	warn := fmt.Sprintf("AC frequency estimated at %.*f ± %.*f Hz from %d windows, not the %g Hz given (at %g Hz the phase would turn %.0f° across the longest group, %.1f s, and the currents would read low); demodulated at %.*f Hz in %.4g s windows",
+	warn := fmt.Sprintf("AC frequency estimated at %.*f ± %.*f Hz from %d windows, not the %g Hz given (at %g Hz the phase would turn %.0f° across the longest group, %.1f s, and the currents would read low); demodulated at %.*f Hz in %.4g s windows; the estimate's own uncertainty turns the phase by 360·σ·t, so phases compare between the conductors of a group, not between groups",
 		dec, est.freq, dec, est.sigma, est.windows, o.freq, o.freq, turn, span, dec, est.freq, win2)
 	again, wander, err := followWander(s, again, fit.Windows, est.freq, win2, pl)
 	if err != nil {
