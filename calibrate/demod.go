@@ -385,6 +385,10 @@ type template struct {
 	slope     bool
 	nuisance  []float64
 	freq      float64
+	// chol is the Cholesky factor of XᵀX for a window's own basis
+	// (generalTemplate), whose ginv then holds only its first two rows;
+	// nil for the shared template, whose ginv is whole.
+	chol []float64
 }
 
 // nuisanceCols is the number of columns the nuisance frequencies take.
@@ -490,6 +494,10 @@ type demodulator struct {
 	times windowTimes // the times of a window off the shared grid
 	gram  []float64   // p×p normal matrix of gen
 	chol  []float64   // its Cholesky factor
+	// grid holds the nuisance columns on the shared template's time grid
+	// and their block of the normal matrix (nil until a window on the grid
+	// needs them): windows on the grid take them instead of forming them.
+	grid *nuisanceGrid
 }
 
 // uniform reports whether rows [lo, hi) sit on the template's time grid
@@ -540,7 +548,11 @@ func (d *demodulator) window(lo, hi int) error {
 		if d.fit == nil {
 			d.fit = newFreqFit(set.Harmonics, set.Drift, set.Nuisance, !set.ConstantAmplitude)
 		}
-		if k := d.fit.load(c.Time[lo:hi], [3][]float64{c.B[0][lo:hi], c.B[1][lo:hi], c.B[2][lo:hi]}); k >= 0 {
+		var grid *nuisanceGrid
+		if len(set.Nuisance) > 0 && hi-lo == d.tpl.n && d.uniform(lo, hi) {
+			grid = d.nuisanceGrid()
+		}
+		if k := d.fit.load(c.Time[lo:hi], [3][]float64{c.B[0][lo:hi], c.B[1][lo:hi], c.B[2][lo:hi]}, grid); k >= 0 {
 			return c.badValue(k, lo, hi)
 		}
 		// The four-parameter fit (IEEE Std 1057 / 1241) from the nominal
@@ -560,7 +572,7 @@ func (d *demodulator) window(lo, hi int) error {
 			d.outLo, d.outHi = math.Min(d.outLo, f), math.Max(d.outHi, f)
 		}
 		var err2 error
-		tpl, err2 = d.generalTemplate(&d.fit.times, f)
+		tpl, err2 = d.generalTemplate(&d.fit.times, f, grid)
 		if err2 != nil {
 			return fmt.Errorf("calibrate: demodulate: window at rows %d-%d: %w", lo, hi-1, err2)
 		}
@@ -570,7 +582,7 @@ func (d *demodulator) window(lo, hi int) error {
 	} else {
 		var err error
 		d.times.set(c.Time[lo:hi])
-		tpl, err = d.generalTemplate(&d.times, set.Freq)
+		tpl, err = d.generalTemplate(&d.times, set.Freq, nil)
 		if err != nil {
 			return fmt.Errorf("calibrate: demodulate: window at rows %d-%d (t = %.6f s): %w", lo, hi-1, t0, err)
 		}
@@ -641,13 +653,22 @@ func (d *demodulator) window(lo, hi int) error {
 			return c.badValue(k, lo, hi)
 		}
 		var fitted float64
-		for i := 0; i < p; i++ {
-			var s float64
-			for j := 0; j < p; j++ {
-				s += tpl.ginv[i*p+j] * xty[j]
+		if tpl.chol != nil {
+			// A window's own basis: solved with its Cholesky factor.
+			copy(beta, xty)
+			cholSolve(tpl.chol, beta)
+			for i, b := range beta {
+				fitted += b * xty[i]
 			}
-			beta[i] = s
-			fitted += s * xty[i]
+		} else {
+			for i := 0; i < p; i++ {
+				var s float64
+				for j := 0; j < p; j++ {
+					s += tpl.ginv[i*p+j] * xty[j]
+				}
+				beta[i] = s
+				fitted += s * xty[i]
+			}
 		}
 		rss := math.Max(yy-fitted, 0)
 		s2 := rss / dof
@@ -692,7 +713,7 @@ func (d *demodulator) window(lo, hi int) error {
 // generalTemplate builds the basis from the window's own timestamps g, in
 // buffers reused from window to window (the template is valid until the
 // next call).
-func (d *demodulator) generalTemplate(g *windowTimes, freq float64) (*template, error) {
+func (d *demodulator) generalTemplate(g *windowTimes, freq float64, grid *nuisanceGrid) (*template, error) {
 	n, p := len(g.tau), d.tpl.p
 	tp := d.gen
 	if tp == nil {
@@ -715,12 +736,24 @@ func (d *demodulator) generalTemplate(g *windowTimes, freq float64) (*template, 
 		q := p - tp.nuisanceCols()
 		fillSlope(tp.basis[q-2], tp.basis[q-1], tp.basis[0], tp.basis[1], g.tau)
 	}
-	fillNuisance(tp.basis[p-tp.nuisanceCols():], g.tau, tp.nuisance, tp.slope)
+	q := p - tp.nuisanceCols()
+	if grid != nil {
+		for j := q; j < p; j++ {
+			copy(tp.basis[j], grid.cols[j-q])
+		}
+	} else {
+		fillNuisance(tp.basis[q:], g.tau, tp.nuisance, tp.slope)
+	}
 	xtx := d.gram
 	for i := 0; i < p; i++ {
 		for j := i; j < p; j++ {
-			s := float64(n)
-			if i != 2 || j != 2 {
+			var s float64
+			switch {
+			case i == 2 && j == 2:
+				s = float64(n)
+			case grid != nil && i >= q:
+				s = grid.gram[(i-q)*(p-q)+j-q]
+			default:
 				s = dot(tp.basis[i], tp.basis[j])
 			}
 			xtx[i*p+j], xtx[j*p+i] = s, s
@@ -729,8 +762,12 @@ func (d *demodulator) generalTemplate(g *windowTimes, freq float64) (*template, 
 	if err := cholesky(d.chol, xtx, p, p); err != nil {
 		return nil, errors.New("calibrate: demodulate: the sine basis is singular in a window (too few samples per cycle?)")
 	}
-	// (XᵀX)⁻¹ column by column; it is symmetric, so columns are rows.
-	for j := 0; j < p; j++ {
+	// The coefficients are solved with the factor (window); of (XᵀX)⁻¹
+	// only the first two columns are needed (the fundamental's sigma),
+	// and it is symmetric, so columns are rows. The full inverse cost 45
+	// solves a window beside the mains.
+	tp.chol = d.chol
+	for j := 0; j < 2; j++ {
 		col := tp.ginv[j*p : (j+1)*p]
 		for i := range col {
 			col[i] = 0
@@ -739,6 +776,39 @@ func (d *demodulator) generalTemplate(g *windowTimes, freq float64) (*template, 
 		cholSolve(d.chol, col)
 	}
 	return tp, nil
+}
+
+// nuisanceGrid is the nuisance columns of the shared template (times k
+// dt from a window's start) and their block of the normal matrix,
+// row-major.
+type nuisanceGrid struct {
+	cols [][]float64
+	gram []float64
+}
+
+// nuisanceGrid returns the nuisance columns on the template's grid and
+// their normal block, formed on first use. A window whose times sit on the
+// grid (uniform) takes them: they are the same for every such window, and
+// forming them (a sine per sample and column) and their products was most
+// of the cost of the frequency-estimating windows beside the mains. Windows
+// off the grid form their own.
+func (d *demodulator) nuisanceGrid() *nuisanceGrid {
+	if d.grid != nil {
+		return d.grid
+	}
+	p := d.tpl.p
+	q := p - d.tpl.nuisanceCols()
+	cols := d.tpl.basis[q:p]
+	m := len(cols)
+	g := &nuisanceGrid{cols: cols, gram: make([]float64, m*m)}
+	for i := range m {
+		for j := i; j < m; j++ {
+			v := dot(cols[i], cols[j])
+			g.gram[i*m+j], g.gram[j*m+i] = v, v
+		}
+	}
+	d.grid = g
+	return g
 }
 
 // fillSlope fills the columns of a linear change of the fundamental's
@@ -935,7 +1005,7 @@ func estimateFreq(c *Columns, runs []run, dt, minFreq float64) (float64, error) 
 	// windows of EstimateFreq.
 	ff := newFreqFit(nil, false, nil, false)
 	a, b := r.lo, r.lo+n
-	if ff.load(c.Time[a:b], [3][]float64{c.B[0][a:b], c.B[1][a:b], c.B[2][a:b]}) >= 0 {
+	if ff.load(c.Time[a:b], [3][]float64{c.B[0][a:b], c.B[1][a:b], c.B[2][a:b]}, nil) >= 0 {
 		// Non-finite readings: the window holding them reports them.
 		return f0, nil
 	}

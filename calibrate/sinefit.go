@@ -577,7 +577,9 @@ func newFreqFit(harmonics []int, drift bool, nuisance []float64, nuisanceSlope b
 // load copies the window's times t and series y[k], less their first
 // values, into the buffers and reports the first axis whose sum of
 // squares is not finite (-1 if none). It panics if the lengths differ.
-func (f *freqFit) load(t []float64, y [3][]float64) int {
+// grid, when not nil, holds the nuisance columns and their normal block
+// for times on the shared grid (demodulator.nuisanceGrid).
+func (f *freqFit) load(t []float64, y [3][]float64, grid *nuisanceGrid) int {
 	n := len(t)
 	for k := range y {
 		if len(y[k]) != n {
@@ -600,8 +602,13 @@ func (f *freqFit) load(t []float64, y [3][]float64) int {
 		cols := f.cols[f.nuisanceStart():f.p]
 		for j := range cols {
 			cols[j] = cols[j][:n]
+			if grid != nil {
+				copy(cols[j], grid.cols[j])
+			}
 		}
-		fillNuisance(cols, tau, f.nuisance, f.nuisanceSlope)
+		if grid == nil {
+			fillNuisance(cols, tau, f.nuisance, f.nuisanceSlope)
+		}
 	}
 	f.t1, f.t2 = 0, 0
 	for _, v := range tau {
@@ -631,7 +638,12 @@ func (f *freqFit) load(t []float64, y [3][]float64) int {
 		m := f.p + 2
 		for i := q; i < f.p; i++ {
 			for j := i; j < f.p; j++ {
-				v := dot(f.cols[i], f.cols[j])
+				var v float64
+				if grid != nil {
+					v = grid.gram[(i-q)*(f.p-q)+j-q]
+				} else {
+					v = dot(f.cols[i], f.cols[j])
+				}
 				f.gram[i*m+j], f.gram[j*m+i] = v, v
 			}
 			for k := range f.ys {
