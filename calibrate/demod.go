@@ -289,7 +289,11 @@ func DemodulateColumns(c *Columns, set *DemodSettings) (*DemodResult, error) {
 		maxH = max(maxH, h)
 	}
 	if float64(maxH)*ds.Freq >= fs/2 {
-		return nil, fmt.Errorf("calibrate: demodulate: %g Hz (harmonic %d of %g Hz) is at or above the Nyquist frequency %g Hz of the log", float64(maxH)*ds.Freq, maxH, ds.Freq, fs/2)
+		what := fmt.Sprintf("%g Hz", ds.Freq)
+		if maxH > 1 {
+			what = fmt.Sprintf("%g Hz (harmonic %d of %g Hz)", float64(maxH)*ds.Freq, maxH, ds.Freq)
+		}
+		return nil, fmt.Errorf("calibrate: demodulate: %s is at or above the Nyquist frequency %.4g Hz of the log", what, fs/2)
 	}
 	if ds.Window == 0 {
 		ds.Window = 10 / ds.Freq
@@ -559,7 +563,7 @@ func (d *demodulator) window(lo, hi int) error {
 		// frequency, one frequency shared by the three axes.
 		f, _, q, err := d.fit.fit(c.Time[lo:hi], set.Freq, 30)
 		if err != nil {
-			return fmt.Errorf("calibrate: demodulate: window at rows %d-%d (t = %.6f s): %w", lo, hi-1, t0, err)
+			return fmt.Errorf("calibrate: demodulate: window at rows %d-%d (t = %s): %w", lo, hi-1, fmtTime(t0), err)
 		}
 		fitQ = q
 		w.Freq = f
@@ -584,7 +588,7 @@ func (d *demodulator) window(lo, hi int) error {
 		d.times.set(c.Time[lo:hi])
 		tpl, err = d.generalTemplate(&d.times, set.Freq, nil)
 		if err != nil {
-			return fmt.Errorf("calibrate: demodulate: window at rows %d-%d (t = %.6f s): %w", lo, hi-1, t0, err)
+			return fmt.Errorf("calibrate: demodulate: window at rows %d-%d (t = %s): %w", lo, hi-1, fmtTime(t0), err)
 		}
 		d.res.General++
 	}
