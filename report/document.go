@@ -448,6 +448,12 @@ type Finding struct {
 	// the finding is about, its chainage measured along that conductor's
 	// route; 0 for conductor 1, Document.Route.
 	Conductor int `json:"conductor,omitempty"`
+	// Lone is true for a finding about a further line that no
+	// conductor's track follows (a service crossing the route, seen at
+	// one traverse): it is about neither conductor 1 nor a further
+	// conductor, and Conductor is 0. Its chainage is conductor 1's where
+	// the line was seen.
+	Lone bool `json:"lone_line,omitempty"`
 }
 
 // Value is a number with its sigma and unit.

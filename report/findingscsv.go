@@ -4,6 +4,7 @@ import (
 	"encoding/csv"
 	"fmt"
 	"io"
+	"math"
 	"strconv"
 	"strings"
 )
@@ -17,23 +18,36 @@ var findingsHeader = []string{
 // WriteFindingsCSV writes the findings, one row each, in the document's
 // order (most pressing first at each chainage; see SortFindings), for a
 // crew's spreadsheet: severity, kind, the conductor (1 for the route's,
-// the track's number for a further one), the chainage range along that
-// conductor, the groups, the position (with longitude and latitude when
-// the document is geo-referenced), the numbers behind the finding as
-// "name = value ± sigma unit" joined by "; ", and the message. A document
-// with no findings gives the header alone.
+// the track's number for a further one, empty for a further line no
+// conductor's track follows, Finding.Lone), the chainage range along that
+// conductor (conductor 1's for a lone line), the groups, the position
+// (with longitude and latitude when the document is geo-referenced), the
+// numbers behind the finding as "name = value ± sigma unit" (four
+// significant digits for a value without a sigma) joined by "; ", and the
+// message. A document with no findings gives the header alone.
+//
+// The file starts with a UTF-8 byte order mark (EF BB BF), so that
+// spreadsheets that otherwise guess a legacy code page show "±" and "°"
+// as written; CSV readers that do not skip it see it at the start of the
+// first header name.
 func WriteFindingsCSV(w io.Writer, d *Document) error {
 	if err := d.Validate(); err != nil {
 		return err
+	}
+	if _, err := io.WriteString(w, utf8BOM); err != nil {
+		return fmt.Errorf("report: writing findings CSV: %w", err)
 	}
 	cw := csv.NewWriter(w)
 	if err := cw.Write(findingsHeader); err != nil {
 		return fmt.Errorf("report: writing findings CSV: %w", err)
 	}
 	for _, f := range d.Findings {
-		conductor := 1
-		if f.Conductor > 0 {
-			conductor = f.Conductor
+		conductor := "1"
+		switch {
+		case f.Lone:
+			conductor = "" // a line no track follows: not conductor 1
+		case f.Conductor > 0:
+			conductor = strconv.Itoa(f.Conductor)
 		}
 		lon, lat := "", ""
 		if lo, la, ok := d.wgs84(f.Position); ok {
@@ -45,7 +59,7 @@ func WriteFindingsCSV(w io.Writer, d *Document) error {
 			if v.Sigma > 0 {
 				s += PlusMinus(v.Value, v.Sigma)
 			} else {
-				s += strconv.FormatFloat(v.Value, 'g', 6, 64)
+				s += sig4(v.Value)
 			}
 			if v.Unit != "" {
 				s += " " + v.Unit
@@ -53,7 +67,7 @@ func WriteFindingsCSV(w io.Writer, d *Document) error {
 			vals = append(vals, s)
 		}
 		row := []string{
-			f.Severity, f.Kind, strconv.Itoa(conductor),
+			f.Severity, f.Kind, conductor,
 			fix(f.ChainageFrom, 3), fix(f.ChainageTo, 3), strings.Join(f.Groups, " "),
 			fix(f.Position[0], 3), fix(f.Position[1], 3), fix(f.Position[2], 3), lon, lat,
 			strings.Join(vals, "; "), f.Message,
@@ -67,4 +81,19 @@ func WriteFindingsCSV(w io.Writer, d *Document) error {
 		return fmt.Errorf("report: writing findings CSV: %w", err)
 	}
 	return nil
+}
+
+// utf8BOM is the UTF-8 encoding of U+FEFF, the byte order mark.
+const utf8BOM = "\uFEFF"
+
+// sig4 formats a value without a sigma to four significant digits,
+// trailing zeros dropped ("0.02959", "1.8"); a whole number of five or
+// more digits is written whole ("12346", not "1.235e+04"), and only very
+// small magnitudes take an exponent.
+func sig4(v float64) string {
+	s := strconv.FormatFloat(v, 'g', 4, 64)
+	if strings.ContainsRune(s, 'e') && math.Abs(v) >= 1 {
+		s = strconv.FormatFloat(v, 'f', 0, 64)
+	}
+	return s
 }

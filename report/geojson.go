@@ -46,11 +46,19 @@ const (
 //     moment_sigma_a_m2, as its dipole-anomaly finding gives them;
 //   - "finding": one Point per finding at its position, with kind,
 //     severity, chainage range and message, "conductor" when it is about
-//     a further conductor, and each of its values as a property named by
-//     valueKey ("step_a" and "step_sigma_a", "cover_m", ...).
+//     a further conductor, "lone_line": true when it is about a further
+//     line that no conductor's track follows (Finding.Lone), and each of
+//     its values as a property named by valueKey ("step_a" and
+//     "step_sigma_a", "cover_m", ...).
 //
 // Sigmas are written with six significant digits, so that none is rounded
-// to zero, and each value with two digits past its sigma's leading one.
+// to zero, and each value with two digits past its sigma's leading one. A
+// sigma that is not positive (a fit that failed and left none, a quantity
+// the readings do not determine) is left out rather than written as 0,
+// which would read as exact. The route's LineStrings are written only when
+// at least one of their stations is used (Station.Used): with none, no
+// conductor was found along the route, and the points of the failed fits
+// stay as "conductor" features with "ok": false and their problem.
 func WriteGeoJSON(w io.Writer, d *Document) error {
 	if err := d.Validate(); err != nil {
 		return err
@@ -66,11 +74,11 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 			"the survey had no geodetic positions. RFC 7946 requires WGS84, so GIS software will misplace " +
 			"these features unless told the frame."
 	}
-	if r := d.Route; r != nil && len(r.Stations) > 1 {
+	if r := d.Route; r != nil && len(r.Stations) > 1 && anyUsed(r) {
 		fc.Features = append(fc.Features, d.routeFeature(r, map[string]any{}))
 	}
 	for _, t := range d.Conductors {
-		if len(t.Route.Stations) < 2 {
+		if len(t.Route.Stations) < 2 || !anyUsed(&t.Route) {
 			continue
 		}
 		fc.Features = append(fc.Features, d.routeFeature(&t.Route, map[string]any{
@@ -81,12 +89,12 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 	for _, g := range d.Groups {
 		for i, s := range g.Sources {
 			props := map[string]any{
-				"group":         g.Key,
-				"source":        i + 1,
-				"depth_m":       roundSig(s.Depth, s.DepthSigma, 3),
-				"depth_sigma_m": sigNum(s.DepthSigma),
-				"ok":            g.OK,
+				"group":   g.Key,
+				"source":  i + 1,
+				"depth_m": roundSig(s.Depth, s.DepthSigma, 3),
+				"ok":      g.OK,
 			}
+			putSigma(props, "depth_sigma_m", s.DepthSigma)
 			if g.Problem != "" {
 				props["problem"] = g.Problem
 			}
@@ -99,27 +107,25 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 			if c, ok := d.cover(s.Depth); ok {
 				cs := d.coverSigma(s.DepthSigma)
 				props["cover_m"] = roundSig(c, cs, 3)
-				props["cover_sigma_m"] = sigNum(cs)
+				putSigma(props, "cover_sigma_m", cs)
 			}
 			if s.Kind == KindDipole {
 				props["feature"] = "object"
 				if m, ms, ok := d.objectMoment(&s); ok {
 					props["moment_a_m2"] = roundSig(m, ms, 4)
-					if ms > 0 {
-						props["moment_sigma_a_m2"] = sigNum(ms)
-					}
+					putSigma(props, "moment_sigma_a_m2", ms)
 				}
 			} else {
 				props["feature"] = "conductor"
 				props["current_a"] = roundSig(s.Current, s.CurrentSigma, 4)
-				props["current_sigma_a"] = sigNum(s.CurrentSigma)
+				putSigma(props, "current_sigma_a", s.CurrentSigma)
 				props["azimuth_deg"] = roundSig(s.Azimuth, s.AzimuthSigma, 2)
-				props["azimuth_sigma_deg"] = sigNum(s.AzimuthSigma)
+				putSigma(props, "azimuth_sigma_deg", s.AzimuthSigma)
 				if s.Phase != nil {
 					ps := 0.0
 					if s.PhaseSigma != nil {
 						ps = *s.PhaseSigma
-						props["phase_sigma_deg"] = sigNum(ps)
+						putSigma(props, "phase_sigma_deg", ps)
 					}
 					props["phase_deg"] = roundSig(*s.Phase, ps, 2)
 				}
@@ -145,6 +151,9 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 		}
 		if f.Conductor > 0 {
 			props["conductor"] = f.Conductor
+		}
+		if f.Lone {
+			props["lone_line"] = true
 		}
 		for _, v := range f.Values {
 			k := valueKey(v)
@@ -242,10 +251,12 @@ func along(p, dir [3]float64, t float64) [3]float64 {
 // lower case with every run of other characters one underscore, then its
 // unit the same way ("step" in A: "step_a"; "location (chainage)" in m:
 // "location_chainage_m"; "reduced chi-square": "reduced_chi_square"; "%":
-// "pct"), so that a GIS can label and filter findings by their numbers.
+// "pct"; a power joins its unit, "moment" in A m^2: "moment_a_m2", as the
+// object feature names it), so that a GIS can label and filter findings by
+// their numbers.
 func valueKey(v Value) string {
 	clean := func(s string) string {
-		s = strings.ReplaceAll(strings.ToLower(s), "%", "pct")
+		s = strings.NewReplacer("%", "pct", "^2", "2", "^3", "3").Replace(strings.ToLower(s))
 		var b strings.Builder
 		under := false
 		for _, r := range s {
@@ -277,6 +288,25 @@ func roundSig(v, sigma float64, prec int) json.Number { return json.Number(fixSi
 
 // sigNum returns a sigma as a JSON number with six significant digits.
 func sigNum(v float64) json.Number { return json.Number(sig(v)) }
+
+// putSigma sets props[key] to sigma (sigNum) when it is positive and
+// finite, and leaves it out otherwise: a zero sigma is one not estimated,
+// not an exact value.
+func putSigma(props map[string]any, key string, sigma float64) {
+	if sigma > 0 && !math.IsInf(sigma, 1) {
+		props[key] = sigNum(sigma)
+	}
+}
+
+// anyUsed reports whether any station of r entered the route's checks.
+func anyUsed(r *Route) bool {
+	for _, s := range r.Stations {
+		if s.Used {
+			return true
+		}
+	}
+	return false
+}
 
 // objectMoment returns the magnitude of a dipole source's moment, A m^2,
 // and its one-sigma uncertainty: the values of the dipole-anomaly finding

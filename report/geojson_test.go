@@ -218,6 +218,10 @@ func TestGeoJSONFindingValues(t *testing.T) {
 		{Value{Name: "reduced chi-square"}, "reduced_chi_square"},
 		{Value{Name: "share of the conductor's current", Unit: "%"}, "share_of_the_conductor_s_current_pct"},
 		{Value{Name: "trend", Unit: "A/m"}, "trend_a_per_m"},
+		// A power joins its unit, as the object feature's moment_a_m2.
+		{Value{Name: "moment", Unit: "A m^2"}, "moment_a_m2"},
+		{Value{Name: "moment sigma", Unit: "A m^2"}, "moment_sigma_a_m2"},
+		{Value{Name: "volume", Unit: "m^3"}, "volume_m3"},
 	} {
 		if got := valueKey(tc.v); got != tc.want {
 			t.Errorf("valueKey(%q, %q) = %q, want %q", tc.v.Name, tc.v.Unit, got, tc.want)
@@ -234,5 +238,21 @@ func TestGeoJSONFindingValues(t *testing.T) {
 		if !strings.Contains(buf.String(), want) {
 			t.Errorf("GeoJSON lacks %s:\n%s", want, buf.String())
 		}
+	}
+	// A dipole-anomaly finding's moment is named as the object feature
+	// names it, not "moment_a_m_2".
+	d.Findings = []Finding{{Kind: "dipole-anomaly", Severity: "caution", Message: "m",
+		Values: []Value{{Name: "moment", Value: 1.2, Sigma: 0.01, Unit: "A m^2"}}}}
+	buf.Reset()
+	if err := WriteGeoJSON(&buf, d); err != nil {
+		t.Fatal(err)
+	}
+	for _, want := range []string{`"moment_a_m2":1.200`, `"moment_sigma_a_m2":0.01`} {
+		if !strings.Contains(buf.String(), want) {
+			t.Errorf("GeoJSON lacks %s:\n%s", want, buf.String())
+		}
+	}
+	if strings.Contains(buf.String(), "a_m_2") {
+		t.Errorf("GeoJSON names a moment a_m_2:\n%s", buf.String())
 	}
 }

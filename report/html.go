@@ -330,6 +330,10 @@ func (v *view) where(f Finding) string {
 			parts = append(parts, fmt.Sprintf("chainage %.0f m%s", f.ChainageFrom, along))
 		}
 	}
+	if f.Lone {
+		// Its chainage is conductor 1's, but the line is not conductor 1.
+		parts = append(parts, "a further line that no conductor's track follows, not conductor 1")
+	}
 	parts = append(parts, en(f.Position))
 	if lon, lat, ok := v.D.wgs84(f.Position); ok {
 		parts = append(parts, latLon(lat, lon, 6))
@@ -512,8 +516,23 @@ func (v *view) summarise() {
 				used = append(used, s)
 			}
 		}
-		line := fmt.Sprintf("A conductor was traced for %.0f m along the route, fitted in %d of %d groups", r.Length, ok, len(d.Groups))
-		if sound := soundGroups(d); sound < ok {
+		var line string
+		switch len(used) {
+		case 0:
+			// No station entered the checks: nothing was traced, and the
+			// route's points are those of fits that found no current.
+			line = fmt.Sprintf("No conductor was found along the route: none of the %s gave a usable fit (see the findings)", plural(len(d.Groups), "group"))
+		case 1:
+			line = fmt.Sprintf("A conductor was found at one station only, chainage %.0f m, fitted in %d of %d groups", used[0].Chainage, ok, len(d.Groups))
+		default:
+			a, b := used[0].Chainage, used[len(used)-1].Chainage
+			line = fmt.Sprintf("A conductor was traced for %.0f m along the route", b-a)
+			if a > 0.5 || r.Length-b > 0.5 {
+				line += fmt.Sprintf(" (chainage %.0f–%.0f m of %.0f m)", a, b, r.Length)
+			}
+			line += fmt.Sprintf(", fitted in %d of %d groups", ok, len(d.Groups))
+		}
+		if sound := soundGroups(d); len(used) > 0 && sound < ok {
 			line += fmt.Sprintf(", %d of them soundly (see the findings for the others)", sound)
 		}
 		v.Headline = append(v.Headline, line+".")
@@ -592,7 +611,7 @@ func (v *view) summarise() {
 			sigText(median(curSig)), sigText(100*median(curRel)), sigText(median(depSig)))
 	}
 	if ok < len(d.Groups) {
-		v.HowSure += fmt.Sprintf(" %d of %d fits failed and are not used.", len(d.Groups)-ok, len(d.Groups))
+		v.HowSure = strings.TrimSpace(v.HowSure + fmt.Sprintf(" %d of %d fits failed and are not used.", len(d.Groups)-ok, len(d.Groups)))
 	}
 }
 

@@ -6,8 +6,9 @@ import (
 
 // addLoneCover checks the cover of every further line source of the
 // usable groups of r that no track follows (route.LoneCover: a service
-// crossing the route, seen at one traverse) and adds the findings, sorted
-// with SortFindings. tracks are the kept tracks; rs the route settings.
+// crossing the route, seen at one traverse) and adds the findings, marked
+// Lone and sorted with SortFindings. tracks are the kept tracks; rs the
+// route settings.
 func (d *Document) addLoneCover(fits []Fit, r *route.Route, rs *route.Settings, tracks []builtTrack) {
 	if rs == nil || rs.MinCover <= 0 {
 		return
@@ -31,7 +32,9 @@ func (d *Document) addLoneCover(fits []Fit, r *route.Route, rs *route.Settings, 
 			}
 			l := route.Line{Point: s.Point, Dir: s.Dir, Current: s.Current, CurrentSigma: s.CurrentSigma, Depth: s.Depth, DepthSigma: s.DepthSigma}
 			if f, ok := route.LoneCover(p, l, rs, len(r.Stations) == 1); ok {
-				d.Findings = append(d.Findings, findingOf(f))
+				nf := findingOf(f)
+				nf.Lone = true
+				d.Findings = append(d.Findings, nf)
 				added = true
 			}
 		}

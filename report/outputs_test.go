@@ -10,6 +10,7 @@ import (
 	"strings"
 	"testing"
 
+	"undercurrent/inverse"
 	"undercurrent/inverse/route"
 )
 
@@ -528,22 +529,33 @@ func TestPlotLegendBelow(t *testing.T) {
 }
 
 // TestWriteFindingsCSV: one row per finding, in the document's order, with
-// the conductor (1 for the route's), the numbers as text and the message;
-// parseable by a CSV reader (encoding/csv) with the header's column count.
+// the conductor (1 for the route's, empty for a further line no track
+// follows), the numbers as text (four significant digits without a sigma)
+// and the message; parseable by a CSV reader (encoding/csv) with the
+// header's column count once the UTF-8 byte order mark, EF BB BF (the
+// Unicode Standard, section 23.8; RFC 3629 section 6), is taken off the
+// front.
 func TestWriteFindingsCSV(t *testing.T) {
 	d := fenwickLane(true)
 	d.Findings = []Finding{
 		{Kind: "current-step", Severity: "warning", ChainageFrom: 90, ChainageTo: 105, Groups: []string{"T07", "T08"},
 			Position: [3]float64{94.437, 53.75, -1.1}, Message: "current falls, here, by \"7.27\" A",
-			Values: []Value{{Name: "step", Value: -7.271, Sigma: 0.918, Unit: "A"}, {Name: "minimum cover", Value: 0.6, Unit: "m"}}},
+			Values: []Value{{Name: "step", Value: -7.271, Sigma: 0.918, Unit: "A"}, {Name: "minimum cover", Value: 0.6, Unit: "m"},
+				{Name: "between-station scatter", Value: 0.0295944, Unit: "A"}, {Name: "azimuth", Value: 123.456, Unit: "deg"}}},
+		{Kind: "shallow-cover", Severity: "warning", Lone: true, ChainageFrom: 60, ChainageTo: 60, Groups: []string{"T05"}, Message: "a further line source"},
 		{Kind: "shallow-cover", Severity: "caution", Conductor: 2, ChainageFrom: 45, ChainageTo: 45, Message: "cover"},
 	}
 	if len(d.Conductors) == 0 || d.Conductors[0].Number != 2 {
-		d.Findings = d.Findings[:1]
+		d.Findings = d.Findings[:2]
 	}
 	var buf bytes.Buffer
 	if err := WriteFindingsCSV(&buf, d); err != nil {
 		t.Fatal(err)
+	}
+	if bytes.HasPrefix(buf.Bytes(), []byte{0xEF, 0xBB, 0xBF}) {
+		buf.Next(3)
+	} else {
+		t.Errorf("findings CSV does not start with the UTF-8 byte order mark: % x", buf.Bytes()[:min(8, buf.Len())])
 	}
 	rows, err := csv.NewReader(&buf).ReadAll()
 	if err != nil {
@@ -559,7 +571,8 @@ func TestWriteFindingsCSV(t *testing.T) {
 	r := rows[1]
 	for name, want := range map[string]string{
 		"severity": "warning", "kind": "current-step", "conductor": "1", "chainage_from_m": "90.000",
-		"groups": "T07 T08", "east_m": "94.437", "values": "step = -7.27 ± 0.92 A; minimum cover = 0.6 m",
+		"groups": "T07 T08", "east_m": "94.437",
+		"values":  "step = -7.27 ± 0.92 A; minimum cover = 0.6 m; between-station scatter = 0.02959 A; azimuth = 123.5 deg",
 		"message": "current falls, here, by \"7.27\" A",
 	} {
 		if got := r[col[name]]; got != want {
@@ -569,7 +582,198 @@ func TestWriteFindingsCSV(t *testing.T) {
 	if r[col["lon_deg"]] == "" || r[col["lat_deg"]] == "" {
 		t.Error("a geo-referenced document's finding has no longitude and latitude")
 	}
-	if len(rows) > 2 && rows[2][col["conductor"]] != "2" {
-		t.Errorf("further conductor's finding: conductor %q", rows[2][col["conductor"]])
+	if rows[0][0] != "severity" {
+		t.Errorf("first header %q", rows[0][0])
+	}
+	if got := rows[2][col["conductor"]]; got != "" || rows[2][col["chainage_from_m"]] != "60.000" {
+		t.Errorf("lone line's finding: conductor %q, want empty (it is not conductor 1)", got)
+	}
+	if len(rows) > 3 && rows[3][col["conductor"]] != "2" {
+		t.Errorf("further conductor's finding: conductor %q", rows[3][col["conductor"]])
+	}
+}
+
+// TestLoneLineFinding: a shallow further line seen at one group of a
+// single-cable route (a service crossing it: 0.6 m below sensors carried
+// 0.3 m above the ground, so 0.3 m of cover against a 0.6 m minimum) is
+// reported as a finding marked Lone, with no conductor number: its
+// findings.csv row leaves the conductor empty, its GeoJSON feature says
+// lone_line, and the crew report says it is not conductor 1. Cover is
+// depth below the sensors less their height (package documentation).
+func TestLoneLineFinding(t *testing.T) {
+	fits := twoCables(false)
+	g := &fits[4]
+	main := g.Result.Sources[0]
+	right := [3]float64{main.Dir[1], -main.Dir[0], 0}
+	c := main.Point
+	lone := inverse.SourceEstimate{
+		Kind:  "line",
+		Point: [3]float64{c[0] + 3*right[0], c[1] + 3*right[1], -0.6}, Dir: [3]float64{right[0], right[1], 0},
+		Current: 15, CurrentSigma: 0.2, Depth: 0.6, DepthSigma: 0.02,
+		Offset: 3, OffsetSigma: 0.02, Azimuth: 120, AzimuthSigma: 0.5,
+		Identifiable: inverse.Identifiable{Current: true, Depth: true, Offset: true, Azimuth: true, Dip: true},
+	}
+	g.Result.Sources = append(g.Result.Sources, lone)
+	d, err := Build(Document{Title: "Harrow Fen substation feeders"}, fits, &BuildSettings{Noise: 2, SensorHeight: 0.3, MinCover: 0.6})
+	if err != nil {
+		t.Fatal(err)
+	}
+	var got []Finding
+	for _, f := range d.Findings {
+		if f.Kind == "shallow-cover" {
+			got = append(got, f)
+		}
+	}
+	if len(d.Conductors) != 0 || len(got) != 1 {
+		for _, f := range d.Findings {
+			t.Log(f.Kind, f.Message)
+		}
+		t.Fatalf("%d tracks and %d cover findings, want none and one", len(d.Conductors), len(got))
+	}
+	f := got[0]
+	if !f.Lone || f.Conductor != 0 || !strings.Contains(f.Message, "not followed along the route") {
+		t.Fatalf("cover finding lone %v, conductor %d: %s", f.Lone, f.Conductor, f.Message)
+	}
+	var buf bytes.Buffer
+	if err := WriteFindingsCSV(&buf, d); err != nil {
+		t.Fatal(err)
+	}
+	rows, err := csv.NewReader(bytes.NewReader(bytes.TrimPrefix(buf.Bytes(), []byte(utf8BOM)))).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	found := false
+	for _, r := range rows[1:] {
+		if r[1] == "shallow-cover" {
+			found = true
+			if r[2] != "" {
+				t.Errorf("lone line's findings.csv conductor %q, want empty", r[2])
+			}
+		}
+	}
+	if !found {
+		t.Error("findings.csv has no shallow-cover row")
+	}
+	buf.Reset()
+	if err := WriteGeoJSON(&buf, d); err != nil {
+		t.Fatal(err)
+	}
+	var fc struct {
+		Features []struct {
+			Properties map[string]any `json:"properties"`
+		} `json:"features"`
+	}
+	if err := json.Unmarshal(buf.Bytes(), &fc); err != nil {
+		t.Fatal(err)
+	}
+	found = false
+	for _, ft := range fc.Features {
+		if ft.Properties["kind"] == "shallow-cover" {
+			found = true
+			if ft.Properties["lone_line"] != true || ft.Properties["conductor"] != nil {
+				t.Errorf("lone line's GeoJSON finding: lone_line %v, conductor %v", ft.Properties["lone_line"], ft.Properties["conductor"])
+			}
+		}
+	}
+	if !found {
+		t.Error("GeoJSON has no shallow-cover finding")
+	}
+	buf.Reset()
+	if err := WriteHTML(&buf, d); err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(buf.String(), "a further line that no conductor&#39;s track follows, not conductor 1") {
+		t.Error("the crew report does not say the lone line's finding is not about conductor 1")
+	}
+}
+
+// TestNoConductorFound: when no group's fit finds a current (each within
+// currentK sigma of zero, as over ground with no conductor), the crew
+// report says plainly that no conductor was found and does not say one
+// was traced, and route.geojson (RFC 7946) has no route LineString and no
+// sigma written as 0 (a failed fit's unestimated sigmas would read as
+// exact), while staying a FeatureCollection with a Point per failed fit.
+// With the currents restored the same route is traced, as a control; with
+// G05's alone, the report says a conductor was found at one station.
+func TestNoConductorFound(t *testing.T) {
+	for _, keep := range []int{-1, 4, 10} { // the fit kept: none, G05's, all
+		found := keep >= 0
+		fits := twoCables(false)
+		for i := range fits {
+			if keep >= 0 && (keep == i || keep == len(fits)) {
+				continue
+			}
+			s := &fits[i].Result.Sources[0]
+			s.Current, s.CurrentSigma = 0.01, 0.2
+			s.DepthSigma, s.AzimuthSigma, s.OffsetSigma = 0, 0, 0
+		}
+		d, err := Build(Document{Title: "Fenwick Lane cable route"}, fits, &BuildSettings{Noise: 2, SensorHeight: 0.3, MinCover: 0.6})
+		if err != nil {
+			t.Fatal(err)
+		}
+		var buf bytes.Buffer
+		if err := WriteHTML(&buf, d); err != nil {
+			t.Fatal(err)
+		}
+		html := buf.String()
+		switch {
+		case keep == 4:
+			if !strings.Contains(html, "A conductor was found at one station only, chainage 40 m") || strings.Contains(html, "traced") {
+				t.Error("the crew report does not say a conductor was found at G05 alone")
+			}
+		case found:
+			if !strings.Contains(html, "A conductor was traced for 90 m along the route") {
+				t.Error("control: the crew report does not say the conductor was traced for 90 m")
+			}
+		default:
+			if !strings.Contains(html, "No conductor was found along the route") || strings.Contains(html, "traced") {
+				i := strings.Index(html, "conductor was")
+				t.Errorf("the crew report does not say plainly that no conductor was found: %q", html[max(i-20, 0):min(i+200, len(html))])
+			}
+		}
+		buf.Reset()
+		if err := WriteGeoJSON(&buf, d); err != nil {
+			t.Fatal(err)
+		}
+		var fc struct {
+			Type     string `json:"type"`
+			Features []struct {
+				Type     string `json:"type"`
+				Geometry struct {
+					Type string `json:"type"`
+				} `json:"geometry"`
+				Properties map[string]any `json:"properties"`
+			} `json:"features"`
+		}
+		if err := json.Unmarshal(buf.Bytes(), &fc); err != nil {
+			t.Fatal(err)
+		}
+		routes, points := 0, 0
+		for _, f := range fc.Features {
+			switch f.Properties["feature"] {
+			case "route":
+				routes++
+			case "conductor":
+				points++
+				if f.Geometry.Type != "Point" {
+					t.Errorf("conductor feature geometry %s", f.Geometry.Type)
+				}
+			}
+			for k, v := range f.Properties {
+				if strings.Contains(k, "sigma") && v == 0.0 {
+					t.Errorf("%v feature %v writes %s as 0", f.Properties["feature"], f.Properties["group"], k)
+				}
+			}
+			if f.Properties["feature"] == "conductor" && f.Properties["current_sigma_a"] == nil {
+				t.Errorf("group %v: a positive current sigma is left out", f.Properties["group"])
+			}
+		}
+		wantRoutes := 0
+		if found {
+			wantRoutes = 1
+		}
+		if fc.Type != "FeatureCollection" || routes != wantRoutes || points != len(fits) {
+			t.Errorf("found %v: %s with %d route and %d conductor features, want %d and %d", found, fc.Type, routes, points, wantRoutes, len(fits))
+		}
 	}
 }

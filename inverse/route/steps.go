@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"strconv"
 )
 
 // steps reports changes in current between successive usable stations
@@ -215,10 +216,17 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64) []F
 		// A change under MinStep of the current is information, not a step
 		// (with the trend disabled every raw difference is a step, as
 		// asked).
+		var change []Value
 		if level := math.Max(up, down); set.trendWindow() > 0 && math.Abs(size) < set.minStep()*level {
 			kind, severity = KindCurrentChange, SeverityInfo
-			msg = fmt.Sprintf("current %s by %s A (%.2g%%) between %s (chainage %.1f m) and %s (%.1f m)%s, beyond its sigma but under the %.3g%% taken as a step: at that size more likely the straight-line model's error, where the conductor changes depth or bends within a few depths of a traverse, than current leaving or joining (traverses closer together there would tell)",
-				verb, pm(math.Abs(size), sigma), 100*math.Abs(size)/level, label(first), first.Chainage, label(second), second.Chainage, along, 100*set.minStep())
+			rel, thr := 100*math.Abs(size)/level, 100*set.minStep()
+			relText, thrText := underText(rel, thr)
+			msg = fmt.Sprintf("current %s by %s A (%s%%) between %s (chainage %.1f m) and %s (%.1f m)%s, beyond %s sigma but under the %s%% taken as a step: at that size more likely the straight-line model's error, where the conductor changes depth or bends within a few depths of a traverse, than current leaving or joining (traverses closer together there would tell)",
+				verb, pm(math.Abs(size), sigma), relText, label(first), first.Chainage, label(second), second.Chainage, along, strconv.FormatFloat(set.stepK(), 'g', 3, 64), thrText)
+			change = []Value{
+				{Name: "relative change", Value: rel, Unit: "%"},
+				{Name: "minimum step", Value: thr, Unit: "%"},
+			}
 		}
 		f := Finding{
 			Kind:     kind,
@@ -234,6 +242,7 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64) []F
 				{Name: "change between bracketing stations", Value: raw, Sigma: rawSigma, Unit: "A"},
 			},
 		}
+		f.Values = append(f.Values, change...)
 		// The shape of the transition places the step within the bracket
 		// when the stations beside it show part of it; a sharp step between
 		// two stations is placed only by the bracket.
@@ -374,4 +383,24 @@ func own(u []*Placed, orig map[*Placed]*Placed) []*Placed {
 		o[i] = orig[p]
 	}
 	return o
+}
+
+// underText formats a percentage x under threshold thr, both positive,
+// for one sentence: thr to three significant digits, and x to two or as
+// many more as it takes for its text to read below thr's (17.6 beside 18,
+// not 18 beside 18).
+func underText(x, thr float64) (xs, ts string) {
+	ts = strconv.FormatFloat(thr, 'g', 3, 64)
+	tv, _ := strconv.ParseFloat(ts, 64)
+	dec := 0 // decimals for two significant digits
+	if x > 0 {
+		dec = max(0, 1-int(math.Floor(math.Log10(x))))
+	}
+	for end := dec + 6; dec <= end; dec++ {
+		xs = strconv.FormatFloat(x, 'f', dec, 64)
+		if v, _ := strconv.ParseFloat(xs, 64); v < tv {
+			return xs, ts
+		}
+	}
+	return strconv.FormatFloat(x, 'g', -1, 64), strconv.FormatFloat(thr, 'g', -1, 64)
 }
