@@ -307,6 +307,19 @@ phase_deg = 10.0
 	if none.Signal.NuisanceHz != nil {
 		t.Errorf("--mains none: the document lists %v", none.Signal.NuisanceHz)
 	}
+	// With the mains left out, the run says that a strong 50 Hz field is
+	// there and not fitted; with them fitted it does not.
+	said := func(d *resultDoc) bool {
+		for _, w := range d.Warnings {
+			if strings.Contains(w, "a 50 Hz field of") && strings.Contains(w, "give --mains 50") {
+				return true
+			}
+		}
+		return false
+	}
+	if !said(none) || said(doc) {
+		t.Errorf("unfitted-mains warning: with --mains none %v, with the default %v; want only the first", said(none), said(doc))
+	}
 	// With the mains fitted the tracer's frequency can be checked too.
 	for _, w := range doc.Warnings {
 		if strings.Contains(w, "could not be checked") {
