@@ -94,7 +94,7 @@ func WriteCSV(w io.Writer, d *Document) error {
 		for i, s := range g.Sources {
 			row := base(strconv.Itoa(i+1), s.Kind, s.Point)
 			set := func(col, v string) { row[csvCol[col]] = v }
-			if c := sourceConductor(d, i, &s); c > 0 {
+			if c := sourceConductor(d, &g, i, &s); c > 0 {
 				set("conductor", strconv.Itoa(c))
 			}
 			if s.Kind != KindDipole {
@@ -135,14 +135,15 @@ func WriteCSV(w io.Writer, d *Document) error {
 }
 
 // sourceConductor is the number of the conductor along the route that
-// source i of a group is: its track's number, 1 for the first line source
-// of a group on a route (or of the only group), 0 for a source in no
-// track.
-func sourceConductor(d *Document, i int, s *Source) int {
+// source i of group g is: its track's number, 1 for the first line source
+// of a group on a route (or of the only group) whose fit is used (g.OK), 0
+// for a source in no track or of a failed fit (no current found, not
+// converged), which the route leaves out.
+func sourceConductor(d *Document, g *Group, i int, s *Source) int {
 	switch {
 	case s.Conductor > 0:
 		return s.Conductor
-	case i == 0 && s.Kind != KindDipole:
+	case i == 0 && s.Kind != KindDipole && g.OK:
 		return 1
 	}
 	return 0

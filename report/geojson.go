@@ -101,7 +101,7 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 			if g.Chainage != nil {
 				props["chainage_m"] = round(*g.Chainage, 3)
 			}
-			if c := sourceConductor(d, i, &s); c > 0 {
+			if c := sourceConductor(d, &g, i, &s); c > 0 {
 				props["conductor"] = c
 			}
 			if c, ok := d.cover(s.Depth); ok {

@@ -1,6 +1,9 @@
 package main
 
 import (
+	"encoding/csv"
+	"os"
+	"path/filepath"
 	"strings"
 	"testing"
 )
@@ -34,5 +37,28 @@ func TestLocateNoSignal(t *testing.T) {
 	}
 	if said != 3 {
 		t.Errorf("%d findings say no current was found, want 3: %+v", said, doc.Findings)
+	}
+	// Nor is a failed group's line conductor 1 in results.csv.
+	out := filepath.Join(t.TempDir(), "out")
+	mustCLI(t, "locate", "--freq", "512", "--mains", "none", "--group-by", "group", "--sensor-height", "0.3", "--min-cover", "0.6", log, "-o", out)
+	f, err := os.Open(filepath.Join(out, "results.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	rows, err := csv.NewReader(f).ReadAll()
+	if err != nil || len(rows) < 2 {
+		t.Fatalf("results.csv: %v, %d rows", err, len(rows))
+	}
+	col := -1
+	for i, h := range rows[0] {
+		if h == "conductor" {
+			col = i
+		}
+	}
+	for _, r := range rows[1:] {
+		if r[col] != "" {
+			t.Errorf("a source of a failed group is conductor %q: %v", r[col], r)
+		}
 	}
 }
