@@ -353,6 +353,21 @@ func (pl demodPlan) unfitted(s *ingest.Samples, freq float64) string {
 	return ""
 }
 
+// freqCheckWindows is about the most windows the frequency check fits: on
+// a longer log it takes every k-th window (checkStep). The check's sigma
+// grows as 1/sqrt of the windows taken, from a fraction of a millihertz,
+// while its cost (a frequency fit per window, the slow part of an AC run
+// beside the mains) stays bounded.
+const freqCheckWindows = 1500
+
+// checkStep is the hop, s, between the windows the frequency check fits
+// when the log holds n windows of win seconds: win (every window) up to
+// freqCheckWindows, then the multiple of win that takes about that many.
+func checkStep(n int, win float64) float64 {
+	k := (n + freqCheckWindows - 1) / freqCheckWindows
+	return float64(max(k, 1)) * win
+}
+
 // harmonicName names harmonic h: "fundamental", "3rd harmonic", ...
 func harmonicName(h float64) string {
 	switch h {
@@ -417,6 +432,7 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 		h = pl.apart(o.freq, win, h)
 		set := pl.settings(o.freq, win, h)
 		set.EstimateFreq = true
+		set.Step = checkStep(len(res.Windows), win)
 		fit, err = calibrate.Demodulate(s, set)
 		if err == nil {
 			break

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"math"
 	"strings"
 	"testing"
 )
@@ -67,4 +68,17 @@ phase_deg = 10.0
 		}
 	}
 	checkOnly(t, doc, sc, 16.7, 0, 0.05)
+}
+
+// TestCheckStep: the frequency check fits every window up to
+// freqCheckWindows and then every k-th, about that many.
+func TestCheckStep(t *testing.T) {
+	for _, tc := range []struct {
+		n    int
+		want float64
+	}{{10, 0.1}, {1500, 0.1}, {1501, 0.2}, {6000, 0.4}, {6001, 0.5}} {
+		if got := checkStep(tc.n, 0.1); math.Abs(got-tc.want) > 1e-12 {
+			t.Errorf("checkStep(%d, 0.1) = %g, want %g", tc.n, got, tc.want)
+		}
+	}
 }
