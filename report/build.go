@@ -266,13 +266,13 @@ func currentK(ac bool) float64 {
 	return 3
 }
 
-// noCurrent reports whether line source s carries no current the data
+// NoCurrent reports whether line source s carries no current the data
 // resolve: not identifiable, or within currentK sigma of zero. A fit to
 // readings with no conductor under them (a coil log with no AC field, a
 // traverse beyond the end of the cable) still places a line somewhere;
 // its depth and position are then noise, and a cover check on them would
 // warn of a conductor that is not there.
-func noCurrent(s *inverse.SourceEstimate, ac bool) bool {
+func NoCurrent(s *inverse.SourceEstimate, ac bool) bool {
 	if s.Kind == KindDipole {
 		return false
 	}
@@ -306,7 +306,7 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int) (Group, route
 	for _, s := range res.Sources {
 		g.Sources = append(g.Sources, buildSource(s, pts, ac))
 	}
-	weak := g.OK && noCurrent(&res.Sources[0], ac)
+	weak := g.OK && NoCurrent(&res.Sources[0], ac)
 	if weak {
 		g.OK = false
 	}

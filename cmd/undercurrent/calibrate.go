@@ -5,6 +5,7 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
+	"math"
 	"strings"
 
 	"github.com/spf13/pflag"
@@ -88,6 +89,19 @@ Examples:
 			}
 			if methods != 1 {
 				return usageErrorf("give exactly one of --spin, --flip0/--flip180, --zero or --show")
+			}
+			// Flag values are checked before any log is read.
+			if reference < 0 || math.IsNaN(reference) || math.IsInf(reference, 0) {
+				return usageErrorf("--reference %g: want the site's field magnitude in nT (> 0), or 0 to keep the fitted ellipsoid's volume", reference)
+			}
+			if fs.Changed("reference") && spin == "" {
+				return usageErrorf("--reference is for the spin method (--spin)")
+			}
+			if a := strings.ToLower(flipAxis); len(a) != 1 || !strings.Contains("xyz", a) {
+				return usageErrorf("--flip-axis %q: want x, y or z", flipAxis)
+			}
+			if fs.Changed("flip-axis") && flip0 == "" {
+				return usageErrorf("--flip-axis is for the flip method (--flip0 and --flip180)")
 			}
 			if out != "" {
 				if err := checkOutFile("-o", out, false); err != nil {

@@ -105,6 +105,11 @@ func TestCalibrateCommandUsage(t *testing.T) {
 		{"calibrate", "--flip0", "a.csv"},
 		{"calibrate", "--flip0", "a.csv", "--flip180", "b.csv", "--flip-axis", "w"},
 		{"calibrate", "stray.csv"},
+		// Flag values are refused before any log is read (the logs named
+		// here do not exist).
+		{"calibrate", "--spin", "nosuch.csv", "--reference", "-5"},
+		{"calibrate", "--spin", "nosuch.csv", "--flip-axis", "q"},
+		{"calibrate", "--zero", "nosuch.csv", "--reference", "49000"},
 	} {
 		if code, _, errOut := runCmd(args...); code != 2 {
 			t.Errorf("%q: exit %d, want 2 (stderr %q)", args, code, errOut)

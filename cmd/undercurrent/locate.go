@@ -92,7 +92,7 @@ func (o *locateOptions) setFlags(fs *pflag.FlagSet) {
 	fs.Float64Var(&o.referenceZ, "reference-z", 0, "report depths below the ground surface at up = `Z` metres, instead of below the sensors' mean height")
 	fs.Float64Var(&o.sensorHeight, "sensor-height", 0, "the sensors were carried `H` metres above the ground (cover = depth - H)")
 	fs.Float64Var(&o.groundSigma, "ground-sigma", 0, "the ground level is known to `S` metres (one sigma) from the depth reference, e.g. how steadily the sensors were held above it; added to the cover sigmas (which otherwise cover the reading noise only)")
-	fs.Float64Var(&o.noise, "noise", 0, "reading noise per axis, `NT` nanotesla (default: estimated from the fits)")
+	fs.Float64Var(&o.noise, "noise", 0, "reading noise per axis, `NT` nanotesla (default, or 0: estimated from the fits)")
 	fs.BoolVar(&o.robust, "robust", false, "down-weight outlying readings (Huber weights)")
 	fs.BoolVar(&o.despike, "despike", false, "remove spikes (Hampel filter) before fitting")
 	fs.Float64Var(&o.stepK, "step-k", 0, "report a step in current when it exceeds `K` standard deviations (default 3)")
@@ -151,8 +151,15 @@ func (o *locateOptions) check(fs *pflag.FlagSet) error {
 	if o.noise < 0 || math.IsNaN(o.noise) || math.IsInf(o.noise, 0) {
 		return usageErrorf("--noise %g: want a noise level in nT >= 0", o.noise)
 	}
-	if o.stepK < 0 || math.IsNaN(o.stepK) {
+	given := func(name string) bool { return fs != nil && fs.Changed(name) }
+	if o.stepK < 0 || math.IsNaN(o.stepK) || given("step-k") && o.stepK == 0 {
 		return usageErrorf("--step-k %g: want a positive number of standard deviations", o.stepK)
+	}
+	if given("window") && o.window == 0 {
+		return usageErrorf("--window 0: want a positive length in seconds (leave it out for the default)")
+	}
+	if given("sensor-height") && o.sensorHeight == 0 {
+		return usageErrorf("--sensor-height 0: for sensors on the ground give --reference-z Z, Z their height (up), and depths are below the ground")
 	}
 	if !(o.minStep >= 0 && o.minStep < 100) {
 		return usageErrorf("--min-step %g: want a percentage from 0 to under 100", o.minStep)
@@ -683,8 +690,8 @@ func travelWarning(sv *survey) string {
 	var keys []string
 	var travel, dist float64
 	for _, g := range sv.groups {
-		if g.res == nil || len(g.res.Sources) == 0 || len(g.travel) == 0 {
-			continue
+		if g.res == nil || len(g.res.Sources) == 0 || len(g.travel) == 0 || report.NoCurrent(&g.res.Sources[0], true) {
+			continue // no conductor found: no distance to judge the travel by
 		}
 		var zm float64
 		for _, p := range g.points {

@@ -38,6 +38,15 @@ func TestLocateNoSignal(t *testing.T) {
 	if said != 3 {
 		t.Errorf("%d findings say no current was found, want 3: %+v", said, doc.Findings)
 	}
+	// Nor is the window's travel judged by a distance to a conductor that
+	// is not there: at 150 Hz the failed fits' lines sit 2 cm under the
+	// sensors, and the run warned of a travel 5 times that distance.
+	at150 := locateDoc(t, "--freq", "150", "--group-by", "group", "--reference-z", "0", log)
+	for _, w := range at150.Warnings {
+		if strings.HasPrefix(w, "AC windows") {
+			t.Errorf("travel warning from failed fits: %s", w)
+		}
+	}
 	// Nor is a failed group's line conductor 1 in results.csv.
 	out := filepath.Join(t.TempDir(), "out")
 	mustCLI(t, "locate", "--freq", "512", "--mains", "none", "--group-by", "group", "--sensor-height", "0.3", "--min-cover", "0.6", log, "-o", out)
