@@ -261,7 +261,14 @@ func TestWeakSteepSourceReported(t *testing.T) {
 		{"no minimum, ground not given", nil, func(s *Station) { s.Further = []Line{demoPhantom(s.Point)} }, SeverityInfo, []string{
 			"0.6700 ± 0.0020 m below the sensors (ground level not given)", "if it is a real conductor, it lies at the depth given"}},
 		{"strong parallel conductor", demoSet, func(s *Station) { s.Further = []Line{lv(s.Point)} }, "", nil},
-		{"strong steep", demoSet, func(s *Station) { l := demoPhantom(s.Point); l.Current = 4.3; s.Further = []Line{l} }, "", nil},
+		{"strong steep", demoSet, func(s *Station) { l := demoPhantom(s.Point); l.Current = 11; s.Further = []Line{l} }, "", nil},
+		// The demo's T16 (found in review): a fifth of the cable's current,
+		// 3.4 m down, dipping 58 degrees, absorbing its change of depth.
+		{"a fifth, deep and steep", demoSet, func(s *Station) {
+			l := demoPhantom(s.Point)
+			l.Current, l.Depth, l.Dir = 8.5, 3.7, [3]float64{0.31, 0.42, -0.85}
+			s.Further = []Line{l}
+		}, SeverityInfo, []string{"(20% of the conductor's 42 A) dipping 58 degrees", "3.400 ± 0.020 m below ground"}},
 		{"weak level", demoSet, func(s *Station) { l := demoPhantom(s.Point); l.Dir = [3]float64{0.6, 0.8, 0.16}; s.Further = []Line{l} }, "", nil},
 		{"station not used", demoSet, func(s *Station) { s.OK = false; s.Further = []Line{demoPhantom(s.Point)} }, "", nil},
 		{"station a dipole", demoSet, func(s *Station) { s.Dipole = true; s.Further = []Line{demoPhantom(s.Point)} }, "", nil},
@@ -294,11 +301,13 @@ func TestWeakSteepSourceReported(t *testing.T) {
 					t.Errorf("message %q lacks %q", f.Message, s)
 				}
 			}
-			if v, ok := valueNamed(f, "dip"); !ok || math.Abs(v.Value-70.7) > 1e-9 {
-				t.Errorf("dip %v, want 70.7 deg", v)
+			l := st[13].Further[len(st[13].Further)-1] // the steep one
+			wantDip := math.Atan2(math.Abs(l.Dir[2]), math.Hypot(l.Dir[0], l.Dir[1])) * 180 / math.Pi
+			if v, ok := valueNamed(f, "dip"); !ok || math.Abs(v.Value-wantDip) > 1e-9 {
+				t.Errorf("dip %v, want %.3g deg", v, wantDip)
 			}
-			if v, ok := valueNamed(f, "share of the conductor's current"); !ok || math.Abs(v.Value-100*1.02/42) > 1e-9 {
-				t.Errorf("share %v, want %.3g%%", v, 100*1.02/42)
+			if v, ok := valueNamed(f, "share of the conductor's current"); !ok || math.Abs(v.Value-100*math.Abs(l.Current)/42) > 1e-9 {
+				t.Errorf("share %v, want %.3g%%", v, 100*math.Abs(l.Current)/42)
 			}
 			// The source enters neither the steps nor the cover check.
 			if n := count(r, KindShallowCover) + count(r, KindCurrentStep) + count(r, KindCurrentAnomaly); n != 0 {
