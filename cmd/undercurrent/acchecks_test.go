@@ -253,6 +253,14 @@ func TestLocateWrongFreqRefused(t *testing.T) {
 	}
 }
 
+// walkLine is a [[conductor]] table for the AC walk scenario: a line along
+// east through (0, north, up) carrying current A RMS at freq Hz and phase
+// degrees.
+func walkLine(name string, north, up, current, freq, phase float64) string {
+	return fmt.Sprintf("\n[[conductor]]\nname = %q\nkind = \"line\"\npoint = [0.0, %g, %g]\ndirection = [1.0, 0.0, 0.0]\ncurrent_a = %g\nfrequency_hz = %g\nphase_deg = %g\n",
+		name, north, up, current, freq, phase)
+}
+
 // TestLocateTracerBesideMains: a 0.5 A line traced at 512 Hz beside the
 // 20 A, 50 Hz cable and its 3 A third harmonic. Ten cycles of 512 Hz
 // (19.5 ms, about one mains cycle) let the mains field leak into the
@@ -262,25 +270,7 @@ func TestLocateWrongFreqRefused(t *testing.T) {
 // its current and depth, and the mains fitted alongside leave its
 // precision at the reading noise's.
 func TestLocateTracerBesideMains(t *testing.T) {
-	const extra = `
-[[conductor]]
-name = "traced line"
-kind = "line"
-point = [0.0, -0.6, -1.2]
-direction = [1.0, 0.0, 0.0]
-current_a = 0.5
-frequency_hz = 512.0
-phase_deg = -40.0
-
-[[conductor]]
-name = "third harmonic"
-kind = "line"
-point = [0.0, 0.4, -0.8]
-direction = [1.0, 0.0, 0.0]
-current_a = 3.0
-frequency_hz = 150.0
-phase_deg = 10.0
-`
+	extra := walkLine("traced line", -0.6, -1.2, 0.5, 512, -40) + walkLine("third harmonic", 0.4, -0.8, 3, 150, 10)
 	sc, log := acWalkAt(t, t.TempDir(), "50.0", extra)
 	doc := locateDoc(t, "--freq", "512", "--group-by", "group", "--reference-z", "0", log)
 	checkOnly(t, doc, sc, 512, 0, 0)

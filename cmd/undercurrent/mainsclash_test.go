@@ -50,16 +50,7 @@ func TestLocateMainsClash(t *testing.T) {
 // (before, the 50 Hz line was dropped from the nuisance and the cable's
 // field swamped every window: "could not be checked").
 func TestLocateRailwayBesideMains(t *testing.T) {
-	const extra = `
-[[conductor]]
-name = "traction return"
-kind = "line"
-point = [0.0, -0.6, -1.2]
-direction = [1.0, 0.0, 0.0]
-current_a = 0.5
-frequency_hz = 16.7
-phase_deg = 10.0
-`
+	extra := walkLine("traction return", -0.6, -1.2, 0.5, 16.7, 10)
 	sc, log := acWalkAt(t, t.TempDir(), "50.0", extra)
 	doc := locateDoc(t, "--freq", "16.7", "--group-by", "group", "--reference-z", "0", log)
 	for _, w := range doc.Warnings {
