@@ -319,6 +319,32 @@ func BenchmarkDemodulate(b *testing.B) {
 	b.ReportMetric(float64(rows)*float64(b.N)/b.Elapsed().Seconds()/1e6, "Mrows/s")
 }
 
+// BenchmarkDemodulateTracer: a 512 Hz tracer in 0.1 s windows of a 2 kHz
+// log with the mains fitted alongside (MainsNuisance: ten frequencies, 45
+// columns a window), at a known frequency and with the frequency fitted in
+// every window (locate's check, which takes at most about 1500 windows).
+func BenchmarkDemodulateTracer(b *testing.B) {
+	const rows = 120000 // one minute
+	c := acLog(rand.New(rand.NewPCG(1, 1)), 2000, rows, 1.7e9, 512, testPhasors, 1)
+	nz := MainsNuisance(512, 0.1, 2000, []float64{50, 60}, nil)
+	for _, tc := range []struct {
+		name string
+		set  DemodSettings
+	}{
+		{"known frequency", DemodSettings{Freq: 512, Window: 0.1, Nuisance: nz}},
+		{"frequency fitted", DemodSettings{Freq: 512, Window: 0.1, Nuisance: nz, EstimateFreq: true}},
+	} {
+		b.Run(tc.name, func(b *testing.B) {
+			for b.Loop() {
+				if _, err := DemodulateColumns(c, &tc.set); err != nil {
+					b.Fatal(err)
+				}
+			}
+			b.ReportMetric(float64(rows)*float64(b.N)/b.Elapsed().Seconds()/1e6, "Mrows/s")
+		})
+	}
+}
+
 func ExampleDemodulateColumns() {
 	// Two seconds of a 2 kHz three-axis log over a cable carrying 50 Hz.
 	c := &Columns{Time: make([]float64, 4000)}
