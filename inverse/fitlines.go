@@ -663,6 +663,10 @@ func (f *fitter) score(c *candidate) ModelScore {
 // change of amplitude within each window and pulled the cable's phase by 4 sigma.
 var phasorK = math.Sqrt(-2 * math.Log(math.Erfc(3/math.Sqrt2)))
 
+// maxDepthPerExtent bounds the depth of an extra line, in units of the
+// survey's half-width (plus a metre), in the guard.
+const maxDepthPerExtent = 3.0
+
 func (f *fitter) guard(c *candidate) string {
 	sum, err := f.summarise(c)
 	if err != nil {
@@ -683,6 +687,17 @@ func (f *fitter) guard(c *candidate) string {
 	for i, g := range c.sp.geom {
 		if g.z >= g.zHi-1e-9 {
 			return fmt.Sprintf("line %d sits at the minimum depth bound", i+1)
+		}
+		// A line far deeper than the survey is wide makes a nearly uniform
+		// field with a gradient across it, which one current of any size at
+		// any such depth reproduces: not resolved. In review a fit kept a
+		// "1425 A line 110 m down" (the depth bound) and an "893 A line 87
+		// m down" under 12 m traverses beside a 30 A feeder, absorbing a
+		// crossing service's field, and the route took them for the
+		// conductor. An extra line deeper than maxDepthPerExtent times the
+		// survey's half-width (plus a metre) is refused.
+		if d := f.sv.zmin - g.z; d > maxDepthPerExtent*(f.sv.extent+1) {
+			return fmt.Sprintf("line %d lies %.3g m down, deeper than a survey %.3g m across resolves", i+1, d, 2*f.sv.extent)
 		}
 		if g.s <= g.sLo+1e-9 || g.s >= g.sHi-1e-9 {
 			return fmt.Sprintf("line %d sits at the edge of the search region", i+1)

@@ -273,7 +273,7 @@ func checkDipoles(fits []Fit, r *route.Route) bool {
 	for i := range fits {
 		f := &fits[i]
 		ds := found[i]
-		if ds == nil || ds.gain <= dipoleBIC {
+		if ds == nil || ds.gain <= dipoleBIC || ds.atTop {
 			continue
 		}
 		if !agrees(r, f.Key, cand, ds.current, ds.currentSigma) {
@@ -366,7 +366,7 @@ func checkTrackDipoles(fits []Fit, r *route.Route, tracks []builtTrack) bool {
 	changed := false
 	for _, j := range jobs {
 		f, ds := &fits[j.fit], j.ds
-		if ds == nil || ds.gain <= dipoleBIC {
+		if ds == nil || ds.gain <= dipoleBIC || ds.atTop {
 			continue
 		}
 		// The refitted conductor nearest the track's, in the cross
@@ -416,6 +416,13 @@ type dipoleSearch struct {
 	result                *inverse.Result
 	current, currentSigma float64 // the strongest conductor's, with the dipole
 	gain                  float64 // BIC of the original fit minus the dipole model's
+	// atTop is true when the object sits at the top of the search (within
+	// 5 mm of 0.1 m under the lowest sensor): pinned there, not placed by
+	// the data; such an object is not accepted. In review, "objects" 0.2 m
+	// above the ground were reported where the fits absorbed a distant
+	// crossing cable's field, and on the demo, once extra lines deeper than
+	// the survey resolves were refused, T13 and T15 took such objects.
+	atTop bool
 }
 
 // dipoleLocator finds the dipole position that best explains a problem
@@ -834,7 +841,7 @@ func searchFrom(f *Fit, from []*inverse.SourceEstimate, at *[3]float64) *dipoleS
 		base = rss / (p.Sigma * p.Sigma)
 		s2 = p.Sigma * p.Sigma
 	}
-	ds := &dipoleSearch{gain: bic(p, res) - (base + k*math.Log(n))}
+	ds := &dipoleSearch{gain: bic(p, res) - (base + k*math.Log(n)), atTop: pos[2] >= loc.zTop-0.005}
 	// Model error left in the readings (a bend of the conductors some
 	// metres away, which the infinite lines miss) is smooth along the
 	// traverse, not white: the sigmas take the residuals' lag-1
