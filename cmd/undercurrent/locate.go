@@ -133,6 +133,9 @@ func (o *locateOptions) check(fs *pflag.FlagSet) error {
 	if fs != nil && fs.Changed("mains") && o.freq == 0 {
 		return usageErrorf("--mains needs --freq: the mains are fitted beside an AC signal")
 	}
+	if fs != nil && fs.Changed("mains") && (o.freq == 50 || o.freq == 60) {
+		return usageErrorf("--mains fits the mains beside a signal at another frequency; at --freq %g the mains are the signal", o.freq)
+	}
 	if o.window != 0 && o.freq == 0 {
 		return usageErrorf("--window needs --freq: windows are for AC demodulation")
 	}

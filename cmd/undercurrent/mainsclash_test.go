@@ -41,6 +41,9 @@ func TestLocateMainsClash(t *testing.T) {
 	if code, _, errOut := cli(t, "locate", "--mains", "50", log); code != 2 || !strings.Contains(errOut, "--mains needs --freq") {
 		t.Errorf("--mains without --freq: exit %d, %q", code, errOut)
 	}
+	if code, _, errOut := cli(t, "locate", "--freq", "50", "--mains", "50", log); code != 2 || !strings.Contains(errOut, "the mains are the signal") {
+		t.Errorf("--mains at --freq 50: exit %d, %q", code, errOut)
+	}
 }
 
 // TestLocateRailwayBesideMains: a 16.7 Hz traction return current beside

@@ -89,6 +89,9 @@ func groupColumnWarning(path, name string, s *ingest.Samples) string {
 	ext := map[string]*extent{}
 	var order []string
 	for i, g := range s.Group {
+		if g == "" {
+			continue // no group: not one of the column's values
+		}
 		p := [3]float64{s.X[i], s.Y[i], s.Z[i]}
 		e := ext[g]
 		if e == nil {

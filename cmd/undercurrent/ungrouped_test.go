@@ -69,6 +69,17 @@ func TestLocateUngroupedLeftOut(t *testing.T) {
 	if len(doc.Findings) != len(clean.Findings) {
 		t.Errorf("%d findings with blanks, %d without", len(doc.Findings), len(clean.Findings))
 	}
+	// Without --group-by, the hint to group counts the column's values, not
+	// the blank.
+	ungrouped := locateDoc(t, holey)
+	want := fmt.Sprintf("group column \"group\" with %d values", len(clean.Groups))
+	var hinted bool
+	for _, w := range ungrouped.Warnings {
+		hinted = hinted || strings.Contains(w, want)
+	}
+	if !hinted {
+		t.Errorf("no warning saying %q: %q", want, ungrouped.Warnings)
+	}
 }
 
 // TestLocateFailureKeepsWarnings: warnings gathered before a failure are
