@@ -267,7 +267,7 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 		unitFromName[c] = u
 	}
 	for c := range cfg.mapping {
-		if _, u := splitUnit(header[p.src[c]]); u != "" {
+		if _, u := SplitUnit(header[p.src[c]]); u != "" {
 			if _, err := unitScale(kindOf(c), u); err == nil {
 				unitFromName[c] = u
 			}
@@ -413,7 +413,7 @@ func groupBackwardsMsg(t, prev float64, group string) string {
 // the name itself or an alias, either possibly with a unit suffix, which
 // is returned.
 func autoName(h string) (c int, unit string, ok bool) {
-	base, u := splitUnit(h)
+	base, u := SplitUnit(h)
 	c, ok = lookupName(h)
 	if !ok && u != "" {
 		c, ok = lookupName(base)

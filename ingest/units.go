@@ -84,9 +84,10 @@ func unitScale(k kind, u string) (float64, error) {
 	return 0, fmt.Errorf("column takes no unit, got %q", u)
 }
 
-// splitUnit splits a header name such as "Bx_uT", "Bx (uT)" or "Bx[uT]"
-// into its base name and unit suffix. unit is "" when there is none.
-func splitUnit(name string) (base, unit string) {
+// SplitUnit splits a header name such as "Bx_uT", "Bx (uT)" or "Bx[uT]"
+// into its base name and unit suffix, as the readers do when they find a
+// column by name. unit is "" when there is none.
+func SplitUnit(name string) (base, unit string) {
 	n := strings.TrimSpace(name)
 	if strings.HasSuffix(n, ")") || strings.HasSuffix(n, "]") {
 		open := "("

@@ -252,22 +252,11 @@ func (c *coilFlags) takeUnits(rf *readFlags) error {
 var magneticUnits = map[string]bool{"nT": true, "pT": true, "uT": true, "µT": true, "μT": true, "mT": true, "T": true, "G": true, "mG": true}
 
 // unitSuffix returns the unit suffix of a column name, as ingest splits
-// it: "Bx_mV", "Bx mV", "Bx (mV)", "Bx[mV]" give "mV"; "" when none.
+// it (ingest.SplitUnit): "Bx_mV", "Bx mV", "Bx (mV)", "Bx[mV]" give "mV";
+// "" when none.
 func unitSuffix(name string) string {
-	n := strings.TrimSpace(name)
-	if strings.HasSuffix(n, ")") || strings.HasSuffix(n, "]") {
-		open := "("
-		if n[len(n)-1] == ']' {
-			open = "["
-		}
-		if i := strings.LastIndex(n, open); i > 0 {
-			return strings.TrimSpace(n[i+1 : len(n)-1])
-		}
-	}
-	if i := strings.LastIndexAny(n, "_ "); i > 0 {
-		return n[i+1:]
-	}
-	return ""
+	_, u := ingest.SplitUnit(name)
+	return u
 }
 
 // checkLog refuses a coil log that gives its own field columns a
