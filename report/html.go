@@ -540,13 +540,28 @@ func (v *view) summarise() {
 			a, b := used[0], used[len(used)-1]
 			v.Headline = append(v.Headline, fmt.Sprintf("Current is %s A at chainage %.0f m and %s A at %.0f m.",
 				pm(a.Current, a.CurrentSigma), a.Chainage, pm(b.Current, b.CurrentSigma), b.Chainage))
-			lo, hi := used[0], used[0]
-			for _, s := range used {
+			// The shallowest station is taken from every used one (cover is
+			// a safety matter); the deepest from those whose fit is sound,
+			// when there are any: a bend's poor fit read 1.34 m where the
+			// others reach 1.29 m in the demo (found in review).
+			poor := map[string]bool{}
+			for _, g := range d.Groups {
+				if g.Problem != "" {
+					poor[g.Key] = true
+				}
+			}
+			lo := used[0]
+			var hi *Station
+			deepPoor := false
+			for i, s := range used {
 				if s.Depth < lo.Depth {
 					lo = s
 				}
-				if s.Depth > hi.Depth {
-					hi = s
+				switch {
+				case poor[s.Key]:
+					deepPoor = deepPoor || hi == nil || s.Depth > hi.Depth
+				case hi == nil || s.Depth > hi.Depth:
+					hi = &used[i]
 				}
 				curSig = append(curSig, s.CurrentSigma)
 				if s.Current != 0 {
@@ -554,11 +569,30 @@ func (v *view) summarise() {
 				}
 				depSig = append(depSig, s.DepthSigma)
 			}
+			if hi == nil {
+				hi, deepPoor = &lo, false
+				for i, s := range used {
+					if s.Depth > hi.Depth {
+						hi = &used[i]
+					}
+				}
+			} else if deepPoor {
+				// Some poor fit lies deeper than every sound one?
+				deepPoor = false
+				for _, s := range used {
+					deepPoor = deepPoor || poor[s.Key] && s.Depth > hi.Depth
+				}
+			}
 			var line string
-			if rng, one := span(lo.Depth, hi.Depth); one {
+			switch rng, one := span(lo.Depth, hi.Depth); {
+			case one && !deepPoor:
 				line = fmt.Sprintf("Depth %s is %s m at every station", shortRef(d), rng)
-			} else {
+			case one:
+				line = fmt.Sprintf("Depth %s is %s m at every station that fits soundly (deeper only where the fit is poor)", shortRef(d), rng)
+			case !deepPoor:
 				line = fmt.Sprintf("Depth %s is %s m (shallowest at chainage %.0f m)", shortRef(d), rng, lo.Chainage)
+			default:
+				line = fmt.Sprintf("Depth %s is %s m (shallowest at chainage %.0f m; deeper only where the fit is poor)", shortRef(d), rng, lo.Chainage)
 			}
 			if c, ok := d.cover(lo.Depth); ok {
 				line += fmt.Sprintf("; least cover %s m", pm(c, d.coverSigma(lo.DepthSigma)))
