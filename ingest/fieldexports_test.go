@@ -201,37 +201,28 @@ func writeArrowBatches(t *testing.T, name string, sc *arrow.Schema, fill ...func
 	}()
 	p := filepath.Join(t.TempDir(), name)
 	err := WriteFileAtomic(p, func(w io.Writer) error {
+		var bw interface {
+			Write(arrow.RecordBatch) error
+			Close() error
+		}
+		var err error
 		switch filepath.Ext(name) {
 		case ".parquet":
-			pw, err := pqarrow.NewFileWriter(sc, w, nil, pqarrow.NewArrowWriterProperties(pqarrow.WithStoreSchema()))
-			if err != nil {
-				return err
-			}
-			for _, r := range recs {
-				if err := pw.Write(r); err != nil {
-					return err
-				}
-			}
-			return pw.Close()
+			bw, err = pqarrow.NewFileWriter(sc, w, nil, pqarrow.NewArrowWriterProperties(pqarrow.WithStoreSchema()))
 		case ".arrow":
-			fw, err := ipc.NewFileWriter(w, ipc.WithSchema(sc))
-			if err != nil {
-				return err
-			}
-			for _, r := range recs {
-				if err := fw.Write(r); err != nil {
-					return err
-				}
-			}
-			return fw.Close()
+			bw, err = ipc.NewFileWriter(w, ipc.WithSchema(sc))
+		default:
+			bw = ipc.NewWriter(w, ipc.WithSchema(sc))
 		}
-		sw := ipc.NewWriter(w, ipc.WithSchema(sc))
+		if err != nil {
+			return err
+		}
 		for _, r := range recs {
-			if err := sw.Write(r); err != nil {
+			if err := bw.Write(r); err != nil {
 				return err
 			}
 		}
-		return sw.Close()
+		return bw.Close()
 	})
 	if err != nil {
 		t.Fatal(err)

@@ -4,7 +4,6 @@ import (
 	"bytes"
 	"encoding/binary"
 	"fmt"
-	"io"
 	"os"
 	"path/filepath"
 	"strings"
@@ -13,9 +12,6 @@ import (
 	"github.com/apache/arrow-go/v18/arrow"
 	"github.com/apache/arrow-go/v18/arrow/array"
 	"github.com/apache/arrow-go/v18/arrow/ipc"
-	"github.com/apache/arrow-go/v18/arrow/memory"
-	"github.com/apache/arrow-go/v18/parquet"
-	"github.com/apache/arrow-go/v18/parquet/pqarrow"
 	"undercurrent/ingest/ingesttest"
 )
 
@@ -114,48 +110,14 @@ func TestArrowDuplicateFields(t *testing.T) {
 		{Name: "bz", Type: arrow.PrimitiveTypes.Float64},
 		{Name: "bx", Type: arrow.PrimitiveTypes.Float64},
 	}, nil)
-	b := array.NewRecordBuilder(memory.DefaultAllocator, sc)
-	defer b.Release()
-	for i := 0; i < 5; i++ {
-		b.Field(i).(*array.Float64Builder).AppendValues([]float64{float64(i), float64(i) + 0.5}, nil)
+	fill := func(b *array.RecordBuilder) {
+		for i := 0; i < 5; i++ {
+			b.Field(i).(*array.Float64Builder).AppendValues([]float64{float64(i), float64(i) + 0.5}, nil)
+		}
 	}
-	rec := b.NewRecordBatch()
-	defer rec.Release()
-	writers := map[string]func(w io.Writer) error{
-		"dup.arrow": func(w io.Writer) error {
-			fw, err := ipc.NewFileWriter(w, ipc.WithSchema(sc))
-			if err != nil {
-				return err
-			}
-			if err := fw.Write(rec); err != nil {
-				return err
-			}
-			return fw.Close()
-		},
-		"dup.arrows": func(w io.Writer) error {
-			sw := ipc.NewWriter(w, ipc.WithSchema(sc))
-			if err := sw.Write(rec); err != nil {
-				return err
-			}
-			return sw.Close()
-		},
-		"dup.parquet": func(w io.Writer) error {
-			fw, err := pqarrow.NewFileWriter(sc, w, parquet.NewWriterProperties(), pqarrow.DefaultWriterProps())
-			if err != nil {
-				return err
-			}
-			if err := fw.Write(rec); err != nil {
-				return err
-			}
-			return fw.Close()
-		},
-	}
-	for name, write := range writers {
+	for _, name := range []string{"dup.arrow", "dup.arrows", "dup.parquet"} {
 		t.Run(name, func(t *testing.T) {
-			p := filepath.Join(t.TempDir(), name)
-			if err := WriteFileAtomic(p, write); err != nil {
-				t.Fatal(err)
-			}
+			p := writeArrowBatches(t, name, sc, fill)
 			mem := checked(t)
 			_, err := ReadSamples(p, WithAllocator(mem))
 			wantErr(t, err, name+`: schema fields 2 and 5 are both named "bx"; bx would be read from field 2 and field 5 ignored`)
