@@ -146,21 +146,10 @@ func TestGeoJSONObjectMoment(t *testing.T) {
 	if want.Sigma <= 0 {
 		t.Fatalf("no dipole-anomaly finding with a moment: %+v", d.Findings)
 	}
-	var buf bytes.Buffer
-	if err := WriteGeoJSON(&buf, d); err != nil {
-		t.Fatal(err)
-	}
-	var fc struct {
-		Features []struct {
-			Properties map[string]any `json:"properties"`
-		} `json:"features"`
-	}
-	if err := json.Unmarshal(buf.Bytes(), &fc); err != nil {
-		t.Fatal(err)
-	}
+	features := geoFeatures(t, d)
 	trueM := math.Sqrt(drumMoment[0]*drumMoment[0] + drumMoment[1]*drumMoment[1] + drumMoment[2]*drumMoment[2])
 	var objects int
-	for _, f := range fc.Features {
+	for _, f := range features {
 		p := f.Properties
 		if p["feature"] != "object" {
 			continue

@@ -654,20 +654,8 @@ func TestLoneLineFinding(t *testing.T) {
 	if !found {
 		t.Error("findings.csv has no shallow-cover row")
 	}
-	buf.Reset()
-	if err := WriteGeoJSON(&buf, d); err != nil {
-		t.Fatal(err)
-	}
-	var fc struct {
-		Features []struct {
-			Properties map[string]any `json:"properties"`
-		} `json:"features"`
-	}
-	if err := json.Unmarshal(buf.Bytes(), &fc); err != nil {
-		t.Fatal(err)
-	}
 	found = false
-	for _, ft := range fc.Features {
+	for _, ft := range geoFeatures(t, d) {
 		if ft.Properties["kind"] == "shallow-cover" {
 			found = true
 			if ft.Properties["lone_line"] != true || ft.Properties["conductor"] != nil {
@@ -731,25 +719,8 @@ func TestNoConductorFound(t *testing.T) {
 				t.Errorf("the crew report does not say plainly that no conductor was found: %q", html[max(i-20, 0):min(i+200, len(html))])
 			}
 		}
-		buf.Reset()
-		if err := WriteGeoJSON(&buf, d); err != nil {
-			t.Fatal(err)
-		}
-		var fc struct {
-			Type     string `json:"type"`
-			Features []struct {
-				Type     string `json:"type"`
-				Geometry struct {
-					Type string `json:"type"`
-				} `json:"geometry"`
-				Properties map[string]any `json:"properties"`
-			} `json:"features"`
-		}
-		if err := json.Unmarshal(buf.Bytes(), &fc); err != nil {
-			t.Fatal(err)
-		}
 		routes, points := 0, 0
-		for _, f := range fc.Features {
+		for _, f := range geoFeatures(t, d) {
 			switch f.Properties["feature"] {
 			case "route":
 				routes++
@@ -772,8 +743,8 @@ func TestNoConductorFound(t *testing.T) {
 		if found {
 			wantRoutes = 1
 		}
-		if fc.Type != "FeatureCollection" || routes != wantRoutes || points != len(fits) {
-			t.Errorf("found %v: %s with %d route and %d conductor features, want %d and %d", found, fc.Type, routes, points, wantRoutes, len(fits))
+		if routes != wantRoutes || points != len(fits) {
+			t.Errorf("found %v: %d route and %d conductor features, want %d and %d", found, routes, points, wantRoutes, len(fits))
 		}
 	}
 }
