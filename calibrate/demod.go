@@ -842,11 +842,11 @@ func fillSlope(sc, ss, cs, sn, tau []float64) {
 // of freq or of the harmonics of it to be fitted (DemodSettings.Harmonics),
 // and repeats within 1/window of one already taken (nuisance tones need
 // only span the mains, not be told apart). Nil when freq is itself a
-// mains frequency.
+// mains frequency (NearMains: a grid runs off nominal).
 func MainsNuisance(freq, window, fs float64, mains []float64, harmonics []int) []float64 {
 	var cand []float64
 	for _, m := range mains {
-		if !(m > 0) || math.Abs(freq-m) < 1e-9*m {
+		if !(m > 0) || NearMains(freq, m) {
 			return nil
 		}
 		for _, h := range []float64{1, 3, 5} {
@@ -882,6 +882,18 @@ func MainsNuisance(freq, window, fs float64, mains []float64, harmonics []int) [
 	}
 	return out
 }
+
+// MainsTolerance is the relative distance from a nominal mains frequency
+// within which a signal is taken as the mains itself: a grid's frequency
+// may lawfully stray 1% from nominal (50 Hz ± 1% for 99.5% of a year in
+// EN 50160, the European standard for supply voltage characteristics;
+// the same ±1% is Great Britain's statutory limit; both from memory), and
+// a cable surveyed at 50.05 Hz carries the mains, not a tracer beside it.
+const MainsTolerance = 0.01
+
+// NearMains reports whether freq lies within MainsTolerance of the mains
+// frequency m.
+func NearMains(freq, m float64) bool { return math.Abs(freq-m) <= MainsTolerance*m }
 
 // NuisanceSeparation is the least distance, Hz, between a nuisance
 // frequency and the signal (or another nuisance) at which MainsNuisance

@@ -631,6 +631,13 @@ func TestMainsNuisance(t *testing.T) {
 		// The mains themselves: nothing.
 		{50, 0.1, 2000, []float64{50, 60}, nil, "[]"},
 		{60, 0.1, 2000, []float64{50, 60}, nil, "[]"},
+		// A grid off nominal is still the mains (within 1%, NearMains):
+		// a cable surveyed at 50.05 Hz, a 60 Hz grid at 59.7 Hz.
+		{50.05, 0.2, 2000, []float64{50, 60}, nil, "[]"},
+		{59.7, 0.2, 2000, []float64{50, 60}, nil, "[]"},
+		// 48 Hz is no grid's frequency: a tracer there has the mains fitted
+		// beside it (50 Hz lies 2 Hz off, under NuisanceSeparation, and leaks).
+		{48, 0.2, 2000, []float64{50, 60}, nil, "[60 150 180 250 300]"},
 	} {
 		if got := fmt.Sprint(MainsNuisance(tc.freq, tc.window, tc.fs, tc.mains, tc.h)); got != tc.want {
 			t.Errorf("MainsNuisance(%g, %g, %g, %v, %v) = %s, want %s", tc.freq, tc.window, tc.fs, tc.mains, tc.h, got, tc.want)

@@ -75,7 +75,7 @@ const (
 // defaultWindow is the demodulation window locate uses at freq Hz when
 // --window is not given (see above).
 func defaultWindow(freq float64) float64 {
-	if freq == 50 || freq == 60 {
+	if isMains(freq) {
 		return 10 / freq
 	}
 	w := math.Max(10/freq, mainsWindowStep)
@@ -233,6 +233,13 @@ func freqDecimals(sigma float64) int {
 	return min(6, max(2, d))
 }
 
+// isMains reports whether freq is a mains frequency, 50 or 60 Hz, or
+// within the grid's tolerance of one (calibrate.NearMains: a cable
+// surveyed at 50.05 Hz carries the mains).
+func isMains(freq float64) bool {
+	return calibrate.NearMains(freq, 50) || calibrate.NearMains(freq, 60)
+}
+
 // demodPlan holds what every demodulation of a log shares: the mains
 // frequencies fitted as nuisance beside a signal that is not the mains
 // (--mains), and the log's sample rate, Hz.
@@ -310,7 +317,7 @@ func (pl demodPlan) apart(freq, win float64, h []int) []int {
 // windows' residual at 13 times the reading noise with every fit "sound"
 // (found in review). "" when none is, or freq is itself a mains frequency.
 func (pl demodPlan) unfitted(s *ingest.Samples, freq float64) string {
-	if freq == 50 || freq == 60 || !(pl.fs > 0) {
+	if isMains(freq) || !(pl.fs > 0) {
 		return ""
 	}
 	n := min(s.Len(), int(pl.fs)+1)

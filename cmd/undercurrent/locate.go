@@ -133,7 +133,7 @@ func (o *locateOptions) check(fs *pflag.FlagSet) error {
 	if fs != nil && fs.Changed("mains") && o.freq == 0 {
 		return usageErrorf("--mains needs --freq: the mains are fitted beside an AC signal")
 	}
-	if fs != nil && fs.Changed("mains") && (o.freq == 50 || o.freq == 60) {
+	if fs != nil && fs.Changed("mains") && isMains(o.freq) {
 		return usageErrorf("--mains fits the mains beside a signal at another frequency; at --freq %g the mains are the signal", o.freq)
 	}
 	if o.window != 0 && o.freq == 0 {

@@ -44,6 +44,24 @@ func TestLocateMainsClash(t *testing.T) {
 	if code, _, errOut := cli(t, "locate", "--freq", "50", "--mains", "50", log); code != 2 || !strings.Contains(errOut, "the mains are the signal") {
 		t.Errorf("--mains at --freq 50: exit %d, %q", code, errOut)
 	}
+	// A cable surveyed at its grid's frequency off nominal carries the mains
+	// (within 1% of 50 Hz, calibrate.NearMains): the 50 Hz line is the
+	// signal, not a mains field beside it (before, --freq 50.05 was told
+	// to use 40 s windows to fit the mains apart).
+	sc, grid := acWalkAt(t, t.TempDir(), "50.05", "")
+	doc := locateDoc(t, "--freq", "50.05", "--group-by", "group", "--reference-z", "0", grid)
+	for _, w := range doc.Warnings {
+		if strings.Contains(w, "mains") {
+			t.Errorf("--freq 50.05: warning %q", w)
+		}
+	}
+	if len(doc.Signal.NuisanceHz) != 0 {
+		t.Errorf("--freq 50.05: nuisance frequencies %v fitted, want none", doc.Signal.NuisanceHz)
+	}
+	checkOnly(t, doc, sc, 50.05, 0, 0.05)
+	if code, _, errOut := cli(t, "locate", "--freq", "50.05", "--mains", "50", grid); code != 2 || !strings.Contains(errOut, "the mains are the signal") {
+		t.Errorf("--mains at --freq 50.05: exit %d, %q", code, errOut)
+	}
 }
 
 // TestLocateRailwayBesideMains: a 16.7 Hz traction return current beside
