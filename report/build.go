@@ -30,6 +30,10 @@ type Fit struct {
 	// ReferenceZ and MinDepth are used when Build searches for a
 	// magnetised object, see dipole.go); nil means the defaults.
 	Settings *inverse.Settings
+	// PhaseRampHz, when not zero, is the frequency offset, Hz, of a phase
+	// ramp the caller fitted to an AC group (Problem's phasors are turned
+	// back by it), and PhaseRampSigmaHz its one-sigma.
+	PhaseRampHz, PhaseRampSigmaHz float64
 
 	object *route.Object // the magnetised object found by checkDipoles
 	// lineObject is a magnetised object found by checkTrackDipoles beside
@@ -300,6 +304,10 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int) (Group, route
 	// is a failure.
 	g.OK = (res.Status.Converged() || res.Status == inverse.Stalled) && len(res.Sources) > 0
 	g.Notes = append(g.Notes, res.Notes...)
+	if f.PhaseRampHz != 0 {
+		hz, sigma := f.PhaseRampHz, f.PhaseRampSigmaHz
+		g.PhaseRampHz, g.PhaseRampSigmaHz = &hz, &sigma
+	}
 	for _, c := range res.Criteria {
 		g.Criteria = append(g.Criteria, Criterion{Count: c.Count, AIC: c.AIC, BIC: c.BIC, RSS: c.RSS, Chosen: c.Chosen, Rejected: c.Rejected})
 	}

@@ -258,6 +258,13 @@ type Group struct {
 	Sources []Source `json:"sources"`
 	// Notes are remarks on the fit.
 	Notes []string `json:"notes,omitempty"`
+	// PhaseRampHz is the frequency offset, Hz, of the phase ramp fitted to
+	// an AC group, with its one-sigma: the phasors turned by 360·δf·t
+	// degrees across the group (the field's frequency off the one
+	// demodulated at, or wandering) and were turned back before the fit,
+	// about the group's middle. Nil when no ramp was fitted.
+	PhaseRampHz      *float64 `json:"phase_ramp_hz,omitempty"`
+	PhaseRampSigmaHz *float64 `json:"phase_ramp_sigma_hz,omitempty"`
 	// Profile holds a compact copy of the readings for plots; nil when
 	// not kept.
 	Profile *Profile `json:"profile,omitempty"`

@@ -407,8 +407,9 @@ func logRate(s *ingest.Samples) float64 {
 // demodulateAC demodulates s at o.freq with o.window (or defaultWindow),
 // checks the field's frequency against o.freq and, when it is off (see
 // above), demodulates at the estimate. It returns the result, the window
-// used and the warnings to report (without the log's name).
-func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, float64, []string, error) {
+// used, the warnings to report (without the log's name) and the offsets of
+// the groups whose own frequency differs (wanderHints).
+func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, float64, []string, map[string]float64, error) {
 	win := o.window
 	if win == 0 {
 		win = defaultWindow(o.freq)
@@ -416,7 +417,7 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 	pl := demodPlan{mains: o.mains, fs: logRate(s)}
 	res, err := calibrate.Demodulate(s, pl.settings(o.freq, win, nil))
 	if err != nil {
-		return nil, 0, nil, err
+		return nil, 0, nil, nil, err
 	}
 	if w := pl.clash(o.freq, win); w != "" {
 		res.Warnings = append([]string{w}, res.Warnings...)
@@ -425,7 +426,7 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 		res.Warnings = append([]string{w}, res.Warnings...)
 	}
 	if len(res.Windows) == 0 {
-		return res, win, res.Warnings, nil
+		return res, win, res.Warnings, nil, nil
 	}
 	// The mains' odd harmonics, locked to the fundamental, would pull every
 	// window's frequency the same way (the frequency column τ sin ωτ is not
@@ -448,27 +449,23 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 	if err != nil {
 		// The fixed-frequency demodulation went through; a failed check is
 		// worth a warning, not the run.
-		return res, win, append(res.Warnings, fmt.Sprintf("the AC frequency could not be checked (%v): the results assume the field runs at exactly %g Hz", err, o.freq)), nil
+		return res, win, append(res.Warnings, fmt.Sprintf("the AC frequency could not be checked (%v): the results assume the field runs at exactly %g Hz", err, o.freq)), nil, nil
 	}
 	est, ok := estimateWindowFreq(fit.Windows)
 	if !ok {
-		return res, win, append(res.Warnings, fmt.Sprintf("the AC frequency could not be checked: fewer than %d windows have a clear signal (the field %d times its noise on some axis), for example with a stronger field at another frequency nearby; the results assume the field runs at exactly %g Hz", freqCheckMinWindows, freqCheckSNR, o.freq)), nil
+		return res, win, append(res.Warnings, fmt.Sprintf("the AC frequency could not be checked: fewer than %d windows have a clear signal (the field %d times its noise on some axis), for example with a stronger field at another frequency nearby; the results assume the field runs at exactly %g Hz", freqCheckMinWindows, freqCheckSNR, o.freq)), nil, nil
 	}
 	off := est.freq - o.freq
 	span := longestGroupSpan(res.Windows, win)
 	turn := 360 * math.Abs(off) * span
 	if math.Abs(off) <= freqCheckSigmas*est.sigma || turn <= freqCheckDegrees {
-		res, warn, err := followWander(s, res, fit.Windows, o.freq, win, pl)
-		if err != nil {
-			return nil, 0, nil, err
-		}
-		return res, win, appendNonEmpty(res.Warnings, warn), nil
+		return res, win, res.Warnings, wanderHints(fit.Windows, o.freq, win), nil
 	}
 	dec := freqDecimals(est.sigma)
 	if !est.trusted && math.Abs(off) <= freqCheckUntrustedHz {
 		// Walked one way only: the offset may be the walk's, not the grid's.
-		return res, win, append(res.Warnings, fmt.Sprintf("the windows' phase advances as if the AC field ran at %.*f ± %.*f Hz, not the %g Hz given (a turn of %.0f° across the longest group, %.1f s): the grid slightly off its frequency, or the phase changing along traverses all walked the same way where conductors of different phase overlap, which a log walked one way cannot tell apart; the results assume the %g Hz given (walk back and forth, or log a while standing still, to tell)",
-			dec, est.freq, dec, est.sigma, o.freq, turn, span, o.freq)), nil
+		return res, win, append(res.Warnings, fmt.Sprintf(oneWayLead+" the AC field ran at %.*f ± %.*f Hz, not the %g Hz given (a turn of %.0f° across the longest group, %.1f s): the grid slightly off its frequency, or the phase changing along traverses all walked the same way where conductors of different phase overlap, which a log walked one way cannot tell apart; the results assume the %g Hz given (walk back and forth, or log a while standing still, to tell)",
+			dec, est.freq, dec, est.sigma, o.freq, turn, span, o.freq)), wanderHints(fit.Windows, o.freq, win), nil
 	}
 	// Beyond about a quarter of 1/window from --freq the windows' fits no
 	// longer converge reliably; an estimate out there is not to be trusted.
@@ -480,7 +477,7 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 				hint += fmt.Sprintf(", or a window too short to tell them apart (try --window %.1f or longer)", math.Ceil(10*calibrate.NuisanceSeparation(1)/d)/10)
 			}
 		}
-		return nil, 0, nil, fmt.Errorf("%s: the AC field does not run at the %g Hz given: the windows' fitted frequencies average %.3f Hz, too far off for a %.3g s window to follow; give the field's frequency with --freq (about %.2f Hz)%s", s.Source, o.freq, est.freq, win, est.freq, hint)
+		return nil, 0, nil, nil, fmt.Errorf("%s: the AC field does not run at the %g Hz given: the windows' fitted frequencies average %.3f Hz, too far off for a %.3g s window to follow; give the field's frequency with --freq (about %.2f Hz)%s", s.Source, o.freq, est.freq, win, est.freq, hint)
 	}
 	// A window of whole cycles of --freq becomes the nearest whole number
 	// of cycles of the estimate: the windows' phasors are the path averages
@@ -493,70 +490,32 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 	}
 	again, err := calibrate.Demodulate(s, pl.settings(est.freq, win2, nil))
 	if err != nil {
-		return nil, 0, nil, err
+		return nil, 0, nil, nil, err
 	}
 	warn := fmt.Sprintf("AC frequency estimated at %.*f ± %.*f Hz from %d windows, not the %g Hz given (at %g Hz the phase would turn %.0f° across the longest group, %.1f s, and the currents would read low); demodulated at %.*f Hz in %.4g s windows; the estimate's own uncertainty turns the phase by 360·σ·t, so phases compare between the conductors of a group, not between groups",
 		dec, est.freq, dec, est.sigma, est.windows, o.freq, o.freq, turn, span, dec, est.freq, win2)
-	again, wander, err := followWander(s, again, fit.Windows, est.freq, win2, pl)
-	if err != nil {
-		return nil, 0, nil, err
-	}
-	return again, win2, appendNonEmpty(append([]string{warn}, again.Warnings...), wander), nil
+	return again, win2, append([]string{warn}, again.Warnings...), wanderHints(fit.Windows, est.freq, win2), nil
 }
 
-// followWander demodulates each group whose own frequency differs from
-// freq (groupWander) at that frequency, in windows of the same whole
-// number of its cycles, and puts its windows in res in place of those
-// demodulated at freq. It returns the result and a warning naming the
-// groups, or "" when none wandered.
-func followWander(s *ingest.Samples, res *calibrate.DemodResult, fitted []calibrate.Window, freq, window float64, pl demodPlan) (*calibrate.DemodResult, string, error) {
+// oneWayLead starts the warning that a log walked one way seems off its
+// frequency; buildDocument drops it when the groups' fits found the
+// frequency off (wanderWarning then says so).
+const oneWayLead = "the windows' phase advances as if"
+
+// wanderHints returns, for each group whose own frequency differs from
+// freq (groupWander), that frequency's offset from freq, Hz: where the
+// phase-ramp fit of the group starts its search (phaseramp.go). A group's
+// windows walked one way also seem off where conductors of different
+// phase overlap along it, so the offset is only a hint, which the fit
+// takes or leaves (before, such groups were demodulated at their own
+// frequency: a cable and a second one 135° apart in phase read 13.7 A of
+// 20 A, with phases 75° apart from group to group).
+func wanderHints(fitted []calibrate.Window, freq, window float64) map[string]float64 {
 	bad := groupWander(fitted, freq, window)
-	if len(bad) == 0 {
-		return res, "", nil
+	for k, f := range bad {
+		bad[k] = f - freq
 	}
-	keys := make([]string, 0, len(bad))
-	for k := range bad {
-		keys = append(keys, k)
-	}
-	sort.Strings(keys)
-	own := map[string][]calibrate.Window{}
-	cycles := math.Round(window * freq)
-	var worst float64
-	for _, k := range keys {
-		f := bad[k]
-		d, err := calibrate.Demodulate(s, pl.settings(f, cycles/f, nil))
-		if err != nil {
-			return nil, "", err
-		}
-		for _, w := range d.Windows {
-			if w.Group == k {
-				own[k] = append(own[k], w)
-			}
-		}
-		if math.Abs(f-freq) > math.Abs(worst) {
-			worst = f - freq
-		}
-	}
-	out := *res
-	out.Windows = make([]calibrate.Window, 0, len(res.Windows))
-	done := map[string]bool{}
-	for _, w := range res.Windows {
-		ws, ok := own[w.Group]
-		if !ok {
-			out.Windows = append(out.Windows, w)
-			continue
-		}
-		if !done[w.Group] {
-			out.Windows = append(out.Windows, ws...)
-			done[w.Group] = true
-		}
-	}
-	named := keys
-	if len(named) > 8 {
-		named = append(append([]string(nil), named[:8]...), "...")
-	}
-	return &out, fmt.Sprintf("in %d group(s) the AC frequency differs from the %.4f Hz demodulated elsewhere (by up to %+.4f Hz): the frequency wandered during the survey; those groups were demodulated at their own frequencies (%s)",
-		len(keys), freq, worst, strings.Join(named, ", ")), nil
+	return bad
 }
 
 func appendNonEmpty(list []string, s string) []string {

@@ -60,6 +60,7 @@ type coilDoc struct {
 	Groups []struct {
 		Key     string      `json:"key"`
 		Sources []docSource `json:"sources"`
+		RampHz  *float64    `json:"phase_ramp_hz"`
 	} `json:"groups"`
 }
 
@@ -230,6 +231,9 @@ func checkCoilTruth(t *testing.T, doc *coilDoc, sc *simulate.Scenario, curScale,
 		t.Fatalf("%d groups, want the walk's 3", len(doc.Groups))
 	}
 	for _, g := range doc.Groups {
+		if g.RampHz != nil {
+			t.Errorf("%s: a phase ramp of %.3g Hz fitted to a coil log", g.Key, *g.RampHz)
+		}
 		c, ok := truth[g.Key]
 		if !ok || len(g.Sources) == 0 {
 			t.Errorf("group %q: no source, or not a line of the walk", g.Key)

@@ -62,6 +62,9 @@ type resultDoc struct {
 		Background [3]float64  `json:"background_nt"`
 		OK         bool        `json:"ok"`
 		Sources    []docSource `json:"sources"`
+		Notes      []string    `json:"notes"`
+		RampHz     *float64    `json:"phase_ramp_hz"`
+		RampSigma  *float64    `json:"phase_ramp_sigma_hz"`
 		Criteria   []struct {
 			Count    int    `json:"count"`
 			Chosen   bool   `json:"chosen"`

@@ -377,6 +377,9 @@ type group struct {
 	err     error           // fit failure
 	travel  []float64       // AC: distance walked during each window, m
 	half    [][3]float64    // AC: each window's half-travel (calibrate.Window.Travel), m
+	times   []float64       // AC: each window's centre time, s
+	ramp    *groupRamp      // AC: the phase ramp fitted (phaseramp.go); nil for none
+	hint    float64         // AC: the offset of the group's own frequency, Hz, where the ramp search starts; 0 for none
 }
 
 // problem is the group's readings as an inverse problem.
@@ -386,6 +389,9 @@ func (g *group) problem(ac bool, noise float64) *inverse.Problem {
 		// Each window's phasor is the mean of the field along the path walked in
 		// it: the fit models that path average, not the field at its centre.
 		p.Phasors, p.Travel = g.phasors, g.half
+		if g.ramp != nil {
+			p.Phasors = turned(g.phasors, g.times, g.ramp.hz, g.ramp.mid)
+		}
 	} else {
 		p.Fields = g.fields
 	}
@@ -628,7 +634,7 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 		}
 		return nil
 	}
-	res, win, warns, err := demodulateAC(o, s) // acchecks.go
+	res, win, warns, hints, err := demodulateAC(o, s) // acchecks.go
 	if err != nil {
 		return err
 	}
@@ -664,6 +670,8 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 		g.points = append(g.points, w.Pos)
 		g.phasors = append(g.phasors, w.B)
 		g.half = append(g.half, w.Travel)
+		g.times = append(g.times, w.Time)
+		g.hint = hints[w.Group]
 		g.travel = append(g.travel, 2*math.Sqrt(w.Travel[0]*w.Travel[0]+w.Travel[1]*w.Travel[1]+w.Travel[2]*w.Travel[2]))
 	}
 	return nil
@@ -787,6 +795,9 @@ func fitGroups(ctx context.Context, o *locateOptions, sv *survey, progress io.Wr
 			defer wg.Done()
 			for g := range jobs {
 				g.res, g.err = inverse.FitLines(g.problem(sv.ac, o.noise), set)
+				if sv.ac && !o.coil.on() {
+					fitRamp(g, set, o.noise)
+				}
 				if bar != nil {
 					mu.Lock()
 					bar.Add(1)
@@ -830,9 +841,23 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 	if w := travelWarning(sv); w != "" {
 		head.Warnings = append(head.Warnings, w)
 	}
+	if w := wanderWarning(sv); w != "" {
+		// The fits told the frequency's offset from the walk's: the
+		// warning that a log walked one way could not is moot.
+		kept := head.Warnings[:0:0]
+		for _, x := range head.Warnings {
+			if !strings.Contains(x, oneWayLead) {
+				kept = append(kept, x)
+			}
+		}
+		head.Warnings = append(kept, w)
+	}
 	fits := make([]report.Fit, len(sv.groups))
 	for i, g := range sv.groups {
 		fits[i] = report.Fit{Key: g.key, Problem: g.problem(sv.ac, o.noise), Result: g.res, Err: g.err, Settings: o.fitSettings()}
+		if g.ramp != nil {
+			fits[i].PhaseRampHz, fits[i].PhaseRampSigmaHz = g.ramp.hz, g.ramp.sigma
+		}
 	}
 	// report.Build takes no context; its along-route analysis (the dipole
 	// refits above all) can take seconds, so an interrupt is not kept

@@ -1,0 +1,253 @@
+package main
+
+import (
+	"fmt"
+	"math"
+	"math/cmplx"
+	"strings"
+
+	"undercurrent/inverse"
+)
+
+// Phase ramps.
+//
+// A window's phasor is the field demodulated at the frequency used, f. When
+// the field runs at f + δf (a frequency estimated from the log is off by
+// its sigma, a grid wanders between the frequency check and a traverse),
+// every phasor turns by 2π δf t: across a group walked in T seconds, by
+// 360 δf T degrees. One complex current per line cannot follow that turn.
+// At high signal to noise even a degree matters: on a walk over a 20 A
+// cable at 50.05 Hz demodulated at 50.0505 Hz (a 1.1° turn per 6 s
+// traverse) the residual was 3.6 nT against 0.12 nT at the exact
+// frequency, so every sigma came out 30 times too wide, and the phases of
+// neighbouring traverses differed by 2° each; on a coil log it left a weak
+// line of 1% of the current in quadrature, followed as a second conductor.
+//
+// fitRamp fits each AC group with a phase ramp as well: the phasors are
+// turned back by e^{-i 2π δf (t - t̄)} (t̄ the group's mean window time, so
+// the phases reported stay those at the group's middle) and δf is chosen to
+// minimise the fit's residual with the group's line count held (a
+// parabola through fits at 0, a linearised estimate and twice it, then one
+// more at the parabola's minimum). The ramp is kept only when it pays for
+// itself: the group's refit (with the count chosen afresh) must lower the
+// Bayesian information criterion by more than its extra parameter costs,
+// and δf must be rampSigmas of its own sigma away from 0. A ramp too weak
+// to estimate (the linearised estimate within rampScreen of its sigma)
+// costs nothing but that estimate. The ramp's sigma comes from the
+// parabola's curvature; the other parameters' sigmas are those at the
+// fitted ramp (they hardly correlate with it: the ramp is centred on the
+// group's middle and acts in quadrature).
+//
+// Coil logs are fitted without a ramp: a moving coil's voltage also holds
+// its motion through the field, (v·∇)B, which the conversion at ω leaves as
+// a quadrature term -i (v·∇)B/ω; across a line at distance r it turns the
+// phase by about v² t/(ω r²), the same way whichever way the traverse is
+// walked: a ramp of v²/(2π ω r²) Hz (0.0004 Hz on the coil walk at 1 m/s,
+// which a ramp took for a frequency offset, moving the phases 0.12°, ten
+// of their sigmas).
+
+const (
+	// rampMinWindows is the fewest windows a group needs for a ramp to be
+	// fitted (it costs one parameter).
+	rampMinWindows = 8
+	// rampScreen is how many of its sigmas the linearised estimate must be
+	// from 0 before the ramp is searched for.
+	rampScreen = 2
+	// rampSigmas is how many of its sigmas a fitted ramp must be from 0 to
+	// be kept (two-sided 0.1%).
+	rampSigmas = 3.29
+	// rampMaxDegrees bounds the turn searched for across a group: the
+	// frequency check acts on errors that turn the phase by more than
+	// freqCheckDegrees.
+	rampMaxDegrees = 20
+)
+
+// groupRamp is the phase ramp fitted to a group.
+type groupRamp struct {
+	hz, sigma float64 // frequency offset and its one-sigma, Hz
+	mid       float64 // time the ramp is centred on, s
+	turn      float64 // turn across the group, degrees
+}
+
+// turned returns the phasors ps of windows at times ts turned back by a
+// ramp of hz about mid.
+func turned(ps [][3]complex128, ts []float64, hz, mid float64) [][3]complex128 {
+	out := make([][3]complex128, len(ps))
+	for i, p := range ps {
+		r := cmplx.Rect(1, -2*math.Pi*hz*(ts[i]-mid))
+		for k := range p {
+			out[i][k] = p[k] * r
+		}
+	}
+	return out
+}
+
+// rss is the sum of squares of a fit's residual phasors (real and
+// imaginary parts), nT².
+func rss(res *inverse.Result) float64 {
+	var s float64
+	for _, r := range res.ResidualPhasors {
+		for _, v := range r {
+			s += real(v)*real(v) + imag(v)*imag(v)
+		}
+	}
+	return s
+}
+
+// rampStep is the linearised ramp, rad/s, that would best turn res's
+// model into its data (phasors at times ts about mid): the data are the
+// model turned by a small angle a τ, r ≈ i a τ m, so
+// a = Σ τ Im(m* r) / Σ τ² |m|², with sigma σ / sqrt(Σ τ² |m|²) for a noise
+// σ per real component (the model's own freedom to follow the turn
+// ignored: the step only seeds the search). ok is false when there is
+// nothing to go by.
+func rampStep(res *inverse.Result, ts []float64, mid float64) (a, sigma float64, ok bool) {
+	var num, den float64
+	for i, m := range res.PredictedPhasors {
+		tau := ts[i] - mid
+		for k := range m {
+			r := res.ResidualPhasors[i][k]
+			num += tau * (real(m[k])*imag(r) - imag(m[k])*real(r))
+			den += tau * tau * (real(m[k])*real(m[k]) + imag(m[k])*imag(m[k]))
+		}
+	}
+	if !(den > 0) || !(res.Sigma > 0) {
+		return 0, 0, false
+	}
+	return num / den, res.Sigma / math.Sqrt(den), true
+}
+
+// fitRamp fits g (fitted already without a ramp, g.res) with a phase
+// ramp, and keeps it (g.ramp, g.res) when it pays for itself; see above.
+// The search starts at 0, or at g.hint (the offset of the group's own
+// frequency, from its windows) when the fit there is better: a grid that
+// wandered 0.03 Hz turns the phase 65° across a 6 s traverse, beyond what
+// the linearised step finds from 0, while a group whose windows' phases
+// turn because conductors of different phase overlap along it (the
+// windows then seem to run 0.03 Hz off, walked one way) fits worse there.
+func fitRamp(g *group, set *inverse.Settings, noise float64) {
+	res := g.res
+	if g.err != nil || res == nil || len(res.Sources) == 0 || len(g.times) < rampMinWindows ||
+		len(g.times) != len(g.phasors) || len(res.PredictedPhasors) != len(g.phasors) {
+		return
+	}
+	var mid float64
+	lo, hi := g.times[0], g.times[0]
+	for _, t := range g.times {
+		mid += t
+		lo, hi = math.Min(lo, t), math.Max(hi, t)
+	}
+	mid /= float64(len(g.times))
+	span := hi - lo
+	if !(span > 0) {
+		return
+	}
+	count := 0
+	for _, s := range res.Sources {
+		if s.Kind == "line" {
+			count++
+		}
+	}
+	held := *set
+	held.Count = max(count, 1)
+	fitAt := func(hz float64, s *inverse.Settings) (*inverse.Result, float64) {
+		p := g.problem(true, noise)
+		p.Phasors = turned(g.phasors, g.times, hz, mid)
+		r, err := inverse.FitLines(p, s)
+		if err != nil || r == nil || len(r.Sources) == 0 {
+			return nil, math.Inf(1)
+		}
+		return r, rss(r)
+	}
+	s0 := rss(res) // res has held.Count lines
+	centre, sc, rc := 0.0, s0, res
+	if g.hint != 0 {
+		if r, s := fitAt(g.hint, &held); s < s0 {
+			centre, sc, rc = g.hint, s, r
+		}
+	}
+	a, sa, ok := rampStep(rc, g.times, mid)
+	if !ok || (centre == 0 && math.Abs(a) < rampScreen*sa) {
+		return
+	}
+	// The step: the linearised estimate, at least three of its sigmas (so
+	// that the parabola's curvature stands above the fits' rounding) and
+	// at most rampMaxDegrees across the group.
+	bound := rampMaxDegrees / 360.0 / span // Hz
+	d := math.Copysign(math.Min(bound, math.Max(math.Abs(a), 3*sa)/(2*math.Pi)), a)
+	_, s1 := fitAt(centre+d, &held)
+	_, s2 := fitAt(centre+2*d, &held)
+	// The parabola through (centre, sc), (centre + d, s1), (centre + 2 d,
+	// s2): sc + b u + c u² at centre + d u.
+	c := (s2 - 2*s1 + sc) / 2
+	if !(c > 0) || math.IsInf(s1, 0) || math.IsInf(s2, 0) {
+		return
+	}
+	b := s1 - sc - c
+	best := centre + math.Max(-1, math.Min(3, -b/(2*c)))*d
+	_, sb := fitAt(best, &held)
+	if !(sb < s0) {
+		return
+	}
+	sigma2 := res.Sigma * res.Sigma
+	if noise == 0 {
+		sigma2 = sb / float64(res.DOF-1)
+	}
+	sigmaHz := math.Sqrt(sigma2/c) * math.Abs(d)
+	if !(math.Abs(best) > rampSigmas*sigmaHz) {
+		return
+	}
+	r1, _ := fitAt(best, set)
+	if r1 == nil {
+		return
+	}
+	// The criterion: the refit's residual against the fit without a ramp,
+	// each with the parameters it took (the ramp one more).
+	n := 6 * len(g.phasors)
+	k0, k1 := n-res.DOF, n-r1.DOF+1
+	var gain float64
+	if noise > 0 {
+		gain = (s0 - rss(r1)) / (res.Sigma * res.Sigma)
+	} else {
+		gain = float64(n) * math.Log(s0/rss(r1))
+	}
+	if !(gain > float64(k1-k0)*math.Log(float64(n))) {
+		return
+	}
+	g.res = r1
+	g.ramp = &groupRamp{hz: best, sigma: sigmaHz, mid: mid, turn: 360 * best * span}
+	r1.Notes = append(r1.Notes, fmt.Sprintf("the phase turned %.2g° across the group (%.3g s): fitted as a frequency offset of %s Hz from the one demodulated at, the field's frequency being off it or wandering; phases are those at the group's middle", g.ramp.turn, span, plusMinusHz(best, sigmaHz)))
+}
+
+// wanderWarning names the groups whose fitted ramp turned the phase more
+// than freqCheckDegrees across them: the field's frequency was off the one
+// demodulated at, or wandered. "" when none did.
+func wanderWarning(sv *survey) string {
+	var keys []string
+	var worst float64
+	for _, g := range sv.groups {
+		if g.ramp == nil || math.Abs(g.ramp.turn) <= freqCheckDegrees {
+			continue
+		}
+		keys = append(keys, g.key)
+		if math.Abs(g.ramp.hz) > math.Abs(worst) {
+			worst = g.ramp.hz
+		}
+	}
+	if len(keys) == 0 {
+		return ""
+	}
+	n := len(keys)
+	if n > 8 {
+		keys = append(keys[:8], "...")
+	}
+	return fmt.Sprintf("in %d group(s) the AC frequency differs from the %.4f Hz demodulated at (by up to %+.4f Hz): the frequency was off or wandered during the survey; each of those groups was fitted with a phase ramp, its frequency offset in the group's notes (%s)",
+		n, sv.doc.Signal.FrequencyHz, worst, strings.Join(keys, ", "))
+}
+
+// plusMinusHz writes a frequency offset and its sigma to two significant
+// digits of the sigma.
+func plusMinusHz(v, sigma float64) string {
+	d := max(0, 1-int(math.Floor(math.Log10(sigma))))
+	return fmt.Sprintf("%+.*f ± %.*f", d, v, d, sigma)
+}
