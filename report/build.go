@@ -339,7 +339,16 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int) (Group, route
 	}
 	if len(res.Sources) > 0 {
 		s := res.Sources[0]
-		st.Point, st.Dir = s.Point, s.Dir
+		if g.OK {
+			// A failed or currentless fit's position means nothing: the
+			// station keeps the readings' centroid and no direction, so
+			// that it neither starts the route's chain nor turns its
+			// neighbours' currents (route.Station). Before, a traverse
+			// with no current found, fitted 13 m aside, started the
+			// chain and flipped the next station's current: a false
+			// "current rises by 1.880 A" on a constant 1 A pipe.
+			st.Point, st.Dir = s.Point, s.Dir
+		}
 		st.Current, st.CurrentSigma = s.Current, s.CurrentSigma
 		st.Phase, st.PhaseSigma = s.Phase, s.PhaseSigma
 		st.Depth, st.DepthSigma = s.Depth, s.DepthSigma

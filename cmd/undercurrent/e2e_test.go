@@ -57,6 +57,7 @@ type resultDoc struct {
 	} `json:"frame"`
 	Groups []struct {
 		Key        string      `json:"key"`
+		Chainage   *float64    `json:"chainage_m"`
 		Points     int         `json:"points"`
 		RMS        float64     `json:"rms_nt"`
 		Background [3]float64  `json:"background_nt"`
