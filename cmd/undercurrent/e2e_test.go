@@ -60,6 +60,8 @@ type resultDoc struct {
 		Chainage   *float64    `json:"chainage_m"`
 		Points     int         `json:"points"`
 		RMS        float64     `json:"rms_nt"`
+		Chi2       float64     `json:"chi2"`
+		DOF        int         `json:"dof"`
 		Background [3]float64  `json:"background_nt"`
 		OK         bool        `json:"ok"`
 		Sources    []docSource `json:"sources"`

@@ -92,7 +92,7 @@ func (o *locateOptions) setFlags(fs *pflag.FlagSet) {
 	fs.Float64Var(&o.referenceZ, "reference-z", 0, "report depths below the ground surface at up = `Z` metres, instead of below the sensors' mean height")
 	fs.Float64Var(&o.sensorHeight, "sensor-height", 0, "the sensors were carried `H` metres above the ground (cover = depth - H)")
 	fs.Float64Var(&o.groundSigma, "ground-sigma", 0, "the ground level is known to `S` metres (one sigma) from the depth reference, e.g. how steadily the sensors were held above it; added to the cover sigmas (which otherwise cover the reading noise only)")
-	fs.Float64Var(&o.noise, "noise", 0, "reading noise per axis, `NT` nanotesla (default, or 0: estimated from the fits)")
+	fs.Float64Var(&o.noise, "noise", 0, "reading noise per axis, `NT` nanotesla, of each reading (for AC, each window's phasor then has NT/sqrt(samples in it)); default, or 0: estimated from the fits")
 	fs.BoolVar(&o.robust, "robust", false, "down-weight outlying readings (Huber weights)")
 	fs.BoolVar(&o.despike, "despike", false, "remove spikes (Hampel filter) before fitting")
 	fs.Float64Var(&o.stepK, "step-k", 0, "report a step in current when it exceeds `K` standard deviations (default 3)")
@@ -410,6 +410,23 @@ type survey struct {
 	// groupWarned is set when a log's group column drew the --group-by
 	// warning (then the span check is not needed).
 	groupWarned bool
+	// windowN are the AC windows' sample counts.
+	windowN []float64
+}
+
+// fitNoise is the noise of the fitted values, nT, for a reading noise of
+// noise per axis (--noise; 0 when it is to be estimated): the reading
+// noise itself for DC; for AC the noise of each real component of a
+// window's RMS phasor, noise/sqrt(N) for windows of N samples (the
+// least-squares variance of a sine fit's coefficients, IEEE Std 1057,
+// 2 noise²/N, over the RMS scale's 2), N the windows' median count. Before,
+// an AC run took --noise as the windows' noise: the true 5 nT reading noise
+// made every sigma 10 times too wide, and a misfit passed as sound.
+func (sv *survey) fitNoise(noise float64) float64 {
+	if !sv.ac || noise == 0 || len(sv.windowN) == 0 {
+		return noise
+	}
+	return noise / math.Sqrt(medianOf(sv.windowN))
 }
 
 // runLocate reads, corrects, fits and analyses; progress, when not nil,
@@ -671,6 +688,7 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 		g.phasors = append(g.phasors, w.B)
 		g.half = append(g.half, w.Travel)
 		g.times = append(g.times, w.Time)
+		sv.windowN = append(sv.windowN, float64(w.N))
 		g.hint = hints[w.Group]
 		g.travel = append(g.travel, 2*math.Sqrt(w.Travel[0]*w.Travel[0]+w.Travel[1]*w.Travel[1]+w.Travel[2]*w.Travel[2]))
 	}
@@ -772,6 +790,7 @@ func (o *locateOptions) fitSettings() *inverse.Settings {
 // fitGroups fits every group, a few at a time.
 func fitGroups(ctx context.Context, o *locateOptions, sv *survey, progress io.Writer) error {
 	set := o.fitSettings()
+	noise := sv.fitNoise(o.noise)
 	workers := o.workers
 	if workers == 0 {
 		workers = runtime.GOMAXPROCS(0)
@@ -794,9 +813,9 @@ func fitGroups(ctx context.Context, o *locateOptions, sv *survey, progress io.Wr
 		go func() {
 			defer wg.Done()
 			for g := range jobs {
-				g.res, g.err = inverse.FitLines(g.problem(sv.ac, o.noise), set)
+				g.res, g.err = inverse.FitLines(g.problem(sv.ac, noise), set)
 				if sv.ac && !o.coil.on() {
-					fitRamp(g, set, o.noise)
+					fitRamp(g, set, noise)
 				}
 				if bar != nil {
 					mu.Lock()
@@ -854,7 +873,7 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 	}
 	fits := make([]report.Fit, len(sv.groups))
 	for i, g := range sv.groups {
-		fits[i] = report.Fit{Key: g.key, Problem: g.problem(sv.ac, o.noise), Result: g.res, Err: g.err, Settings: o.fitSettings()}
+		fits[i] = report.Fit{Key: g.key, Problem: g.problem(sv.ac, sv.fitNoise(o.noise)), Result: g.res, Err: g.err, Settings: o.fitSettings()}
 		if g.ramp != nil {
 			fits[i].PhaseRampHz, fits[i].PhaseRampSigmaHz = g.ramp.hz, g.ramp.sigma
 		}
@@ -870,7 +889,7 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 			GroundSigma:  o.groundSigma,
 			StepK:        o.stepK,
 			MinStep:      minStepFraction(o.minStep),
-			Noise:        o.noise,
+			Noise:        sv.fitNoise(o.noise),
 		})
 	})
 	if err != nil {

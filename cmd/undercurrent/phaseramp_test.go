@@ -68,7 +68,7 @@ func TestLocateNoFalsePhaseRamp(t *testing.T) {
 	for seed := range 4 {
 		dir := t.TempDir()
 		sc, log := acWalkSeed(t, dir, "50.0", extra, 3000+seed)
-		for _, noise := range []string{"", fmt.Sprint(sc.Sensor.Noise / math.Sqrt(0.2*sc.Sensor.SampleRate/2))} {
+		for _, noise := range []string{"", fmt.Sprint(sc.Sensor.Noise)} {
 			args := []string{"--freq", "50", "--group-by", "group", "--reference-z", "0", log}
 			if noise != "" {
 				args = append([]string{"--noise", noise}, args...)
