@@ -410,8 +410,10 @@ type survey struct {
 	// groupWarned is set when a log's group column drew the --group-by
 	// warning (then the span check is not needed).
 	groupWarned bool
-	// windowN are the AC windows' sample counts.
-	windowN []float64
+	// windowN are the AC windows' sample counts, and windowSigma their
+	// phasors' noise per axis from the windows' own sine-fit residuals
+	// (calibrate.Window.Sigma), nT.
+	windowN, windowSigma []float64
 }
 
 // fitNoise is the noise of the fitted values, nT, for a reading noise of
@@ -689,6 +691,11 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 		g.half = append(g.half, w.Travel)
 		g.times = append(g.times, w.Time)
 		sv.windowN = append(sv.windowN, float64(w.N))
+		for _, v := range w.Sigma {
+			if v > 0 {
+				sv.windowSigma = append(sv.windowSigma, v)
+			}
+		}
 		g.hint = hints[w.Group]
 		g.travel = append(g.travel, 2*math.Sqrt(w.Travel[0]*w.Travel[0]+w.Travel[1]*w.Travel[1]+w.Travel[2]*w.Travel[2]))
 	}
@@ -890,6 +897,9 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 			StepK:        o.stepK,
 			MinStep:      minStepFraction(o.minStep),
 			Noise:        sv.fitNoise(o.noise),
+			// AC windows measure their own noise: the yardstick for a
+			// poor fit when --noise is not given.
+			MeasuredNoise: medianOf(sv.windowSigma),
 		})
 	})
 	if err != nil {
