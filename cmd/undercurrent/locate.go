@@ -379,6 +379,7 @@ type group struct {
 	half    [][3]float64    // AC: each window's half-travel (calibrate.Window.Travel), m
 	times   []float64       // AC: each window's centre time, s
 	ramp    *groupRamp      // AC: the phase ramp fitted (phaseramp.go); nil for none
+	res0    *inverse.Result // AC: with a ramp, the fit without one
 	hint    float64         // AC: the offset of the group's own frequency, Hz, where the ramp search starts; 0 for none
 }
 
@@ -846,6 +847,9 @@ feed:
 	wg.Wait()
 	if bar != nil {
 		bar.Finish()
+	}
+	if err == nil {
+		dropWalkRamps(sv.groups)
 	}
 	return err
 }

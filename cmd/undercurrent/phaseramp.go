@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"math/cmplx"
+	"slices"
 	"strings"
 
 	"undercurrent/inverse"
@@ -214,10 +215,52 @@ func fitRamp(g *group, set *inverse.Settings, noise float64) {
 	if !(gain > float64(k1-k0)*math.Log(float64(n))) {
 		return
 	}
-	g.res = r1
+	g.res0, g.res = res, r1
 	g.ramp = &groupRamp{hz: best, sigma: sigmaHz, mid: mid, turn: 360 * best * span}
 	r1.Notes = append(r1.Notes, fmt.Sprintf("the phase turned %.2g° across the group (%.3g s): fitted as a frequency offset of %s Hz from the one demodulated at, the field's frequency being off it or wandering; phases are those at the group's middle", g.ramp.turn, span, plusMinusHz(best, sigmaHz)))
 }
+
+// dropWalkRamps takes back the ramps that turn with the walking direction.
+// A frequency offset turns the phase the same way whichever way a traverse
+// is walked; a turn that reverses with the walking direction is the phase
+// changing along the traverses (the lines' model not quite following it
+// where conductors of different phase overlap), not the frequency. On the
+// demo's exact 50 Hz log four traverses kept ramps of ±0.00003-0.00005 Hz
+// (0.1° across each), positive on those walked one way and negative on
+// the one walked back. When the ramps of groups walked both ways all
+// change sign with the direction, every ramp is taken back (the group keeps
+// its fit without one).
+func dropWalkRamps(groups []*group) {
+	var ref [3]float64
+	var walks, signs []float64
+	var ramped []*group
+	for _, g := range groups {
+		if g.ramp == nil || len(g.points) < 2 {
+			continue
+		}
+		d := sub3(g.points[len(g.points)-1], g.points[0])
+		if len(ramped) == 0 {
+			ref = d
+		}
+		walk := math.Copysign(1, d[0]*ref[0]+d[1]*ref[1])
+		walks = append(walks, walk)
+		signs = append(signs, math.Copysign(1, g.ramp.hz)*walk)
+		ramped = append(ramped, g)
+	}
+	if len(ramped) < 2 || !slices.Contains(walks, 1) || !slices.Contains(walks, -1) {
+		return
+	}
+	for _, s := range signs[1:] {
+		if s != signs[0] {
+			return // not every ramp reverses with the walk
+		}
+	}
+	for _, g := range ramped {
+		g.res, g.res0, g.ramp = g.res0, nil, nil
+	}
+}
+
+func sub3(a, b [3]float64) [3]float64 { return [3]float64{a[0] - b[0], a[1] - b[1], a[2] - b[2]} }
 
 // wanderWarning names the groups whose fitted ramp turned the phase more
 // than freqCheckDegrees across them: the field's frequency was off the one

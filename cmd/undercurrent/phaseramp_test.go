@@ -6,6 +6,7 @@ import (
 	"strings"
 	"testing"
 
+	"undercurrent/inverse"
 	"undercurrent/inverse/simulate"
 )
 
@@ -114,4 +115,46 @@ func acWalkSeed(t *testing.T, dir, freq, extra string, seed int) (*simulate.Scen
 		}
 		return strings.Replace(text, "seed = 2000\n", fmt.Sprintf("seed = %d\n", seed), 1)
 	})
+}
+
+// TestDropWalkRamps: ramps that change sign with the walking direction are
+// the phase changing along the traverses, not the frequency, and are taken
+// back; ramps of one sign on traverses walked both ways (a frequency
+// offset), or on traverses all walked one way, are kept.
+func TestDropWalkRamps(t *testing.T) {
+	mk := func(hz []float64, back []bool) []*group {
+		var gs []*group
+		for i, h := range hz {
+			a, b := [3]float64{0, -3, 0}, [3]float64{0, 3, 0}
+			if back[i] {
+				a, b = b, a
+			}
+			r0 := &inverse.Result{RMS: 1}
+			gs = append(gs, &group{key: fmt.Sprint(i), points: [][3]float64{a, b}, res: &inverse.Result{RMS: 0.5}, res0: r0,
+				ramp: &groupRamp{hz: h}})
+		}
+		return gs
+	}
+	for _, c := range []struct {
+		name string
+		hz   []float64
+		back []bool
+		kept bool
+	}{
+		{"reverses with the walk", []float64{4e-5, -3e-5, 3e-5}, []bool{false, true, false}, false},
+		{"one sign, walked both ways", []float64{-5e-4, -5e-4, -5e-4}, []bool{false, true, false}, true},
+		{"walked one way", []float64{4e-5, 3e-5}, []bool{false, false}, true},
+		{"mixed", []float64{4e-5, -3e-5, -3e-5}, []bool{false, true, false}, true},
+	} {
+		gs := mk(c.hz, c.back)
+		dropWalkRamps(gs)
+		for _, g := range gs {
+			if kept := g.ramp != nil; kept != c.kept {
+				t.Errorf("%s: group %s ramp kept %v, want %v", c.name, g.key, kept, c.kept)
+			}
+			if !c.kept && g.res.RMS != 1 {
+				t.Errorf("%s: group %s keeps the fit with the ramp", c.name, g.key)
+			}
+		}
+	}
 }
