@@ -6,6 +6,8 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"os"
+	"path/filepath"
 	"strings"
 
 	"github.com/spf13/pflag"
@@ -103,7 +105,29 @@ Examples:
 			if fs.Changed("flip-axis") && flip0 == "" {
 				return usageErrorf("--flip-axis is for the flip method (--flip0 and --flip180)")
 			}
+			if fs.Changed("refine") && spin == "" {
+				return usageErrorf("--refine is for the spin method (--spin)")
+			}
+			if show != "" {
+				// --show reads a calibration file, not a log, and writes
+				// nothing: only --json applies.
+				var extra string
+				fs.Visit(func(f *pflag.Flag) {
+					if extra == "" && f.Name != "show" && f.Name != "json" {
+						extra = "--" + f.Name
+						if f.Shorthand != "" {
+							extra = "-" + f.Shorthand + " (" + extra + ")"
+						}
+					}
+				})
+				if extra != "" {
+					return usageErrorf("%s does not apply to --show, which prints a saved calibration file (with --json as JSON) and writes nothing", extra)
+				}
+			}
 			if out != "" {
+				if fi, err := os.Stat(out); err == nil && fi.IsDir() {
+					return usageErrorf("-o %s: is a directory: give the calibration file's name (-o %s)", out, filepath.Join(out, "cal.json"))
+				}
 				if err := checkOutFile("-o", out, false); err != nil {
 					return err
 				}
@@ -111,6 +135,11 @@ Examples:
 			opts, err := rf.options(fs)
 			if err != nil {
 				return err
+			}
+			if !fs.Changed("time-order") {
+				// No method uses time: a log without a time column
+				// still needs one, but its order is not checked.
+				opts = append(opts, ingest.WithTimeOrder(ingest.TimeAnyOrder))
 			}
 			// sensor is the sensor the logs name in their metadata, kept in
 			// the calibration file so that locate can tell a log of another

@@ -300,7 +300,8 @@ written whole or not at all, and its parent must exist. An existing DIR
 is replaced only when it holds nothing but those files: a DIR holding any
 other file is refused (a usage error, before any work), so that a mistyped
 -o cannot replace unrelated work. --json prints the result document on
-stdout. Without either it prints a summary.
+stdout, and its warnings on stderr as well. Without either it prints a
+summary.
 
 The estimates are not a verified locate: confirm before excavation by
 approved methods, treat every conductor as live; local codes and licensed
@@ -346,6 +347,11 @@ Examples:
 				return err
 			}
 			if o.json {
+				// The warnings are in the document too, but stdout is
+				// usually a file then: the operator sees them here.
+				for _, w := range doc.Warnings {
+					fmt.Fprintf(stderr, "warning: %s\n", w)
+				}
 				return report.WriteJSON(stdout, doc)
 			}
 			printSummary(stdout, doc, time.Since(start))
