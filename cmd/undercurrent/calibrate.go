@@ -52,12 +52,17 @@ median |B| is far from the Earth's field gets a warning (a unit is probably
 wrong), and one impossibly far (below 1 pT or above 0.1 T) is refused
 unless --unit gives the field's unit.
 
+In the examples, spin.csv and cal.json are the spin log and the
+calibration of the walk-through in README.md; the logs in
+testdata/examples are small invented ones of the same site (a logger's
+spin in uT under its own column names, a flip pair, a shielded log).
+
 Examples:
-  undercurrent calibrate --spin harrow-fen-spin.csv -o harrow-fen-cal.json
-  undercurrent calibrate --spin spin.csv --reference 49850 --refine -o cal.json
-  undercurrent calibrate --spin spin.csv --column bx=magX,by=magY,bz=magZ --unit bx=uT,by=uT,bz=uT -o cal.json
-  undercurrent calibrate --flip0 north.csv --flip180 south.csv -o cal.json
-  undercurrent calibrate --zero shield.csv -o cal.json --json
+  undercurrent calibrate --spin spin.csv -o cal.json
+  undercurrent calibrate --spin spin.csv --reference 50095.4 --refine -o cal-refined.json
+  undercurrent calibrate --spin testdata/examples/kestrel-moor-spin-uT.csv --column bx=magX,by=magY,bz=magZ --unit bx=uT,by=uT,bz=uT -o cal-uT.json
+  undercurrent calibrate --flip0 testdata/examples/kestrel-moor-flip0.csv --flip180 testdata/examples/kestrel-moor-flip180.csv -o cal-flip.json
+  undercurrent calibrate --zero testdata/examples/kestrel-moor-shield.csv -o cal-zero.json --json
   undercurrent calibrate --show cal.json`,
 		setFlags: func(fs *pflag.FlagSet) {
 			fs.StringVar(&spin, "spin", "", "spin log for the ellipsoid fit")

@@ -1,8 +1,10 @@
 package main
 
 import (
+	"io"
 	"os"
 	"path/filepath"
+	"regexp"
 	"strconv"
 	"strings"
 	"testing"
@@ -258,6 +260,28 @@ func TestStaleTempsRemoved(t *testing.T) {
 	for _, p := range kept {
 		if _, err := os.Lstat(p); err != nil {
 			t.Errorf("%s: removed, want kept", filepath.Base(p))
+		}
+	}
+}
+
+// TestConvertNamesEveryExtension: convert's help and its refusal of an
+// unknown extension list every extension it writes (logExts), as the
+// README's command table does.
+func TestConvertNamesEveryExtension(t *testing.T) {
+	var help strings.Builder
+	c := commands["convert"]
+	c.printHelp(&help, c.flagSet(io.Discard))
+	code, _, errOut := cli(t, "convert", "in.csv", filepath.Join(t.TempDir(), "out.foo"))
+	if code != 2 {
+		t.Errorf("OUT out.foo: exit %d, want 2", code)
+	}
+	for ext := range logExts {
+		named := regexp.MustCompile(regexp.QuoteMeta(ext) + `([^a-z]|$)`)
+		if !named.MatchString(help.String()) {
+			t.Errorf("convert --help does not name %s", ext)
+		}
+		if !named.MatchString(errOut) {
+			t.Errorf("convert's refusal %q does not name %s", errOut, ext)
 		}
 	}
 }
