@@ -56,10 +56,8 @@ Examples:
 				return usageErrorf("give --strict (refuse missing values) or --drop-missing (drop their rows), not both")
 			}
 			if err := checkLogExt(out); err != nil {
-				if ext := filepath.Ext(out); ext != "" {
-					return usageErrorf("OUT %s: cannot write %q files: use %s", out, ext, logExtHelp)
-				}
-				return usageErrorf("OUT %s: no extension: name the file %s", out, logExtHelp)
+				// checkLogExt's message, with the other spellings.
+				return usageErrorf("OUT %s: %v (or .txt for CSV, .feather or .ipc for an Arrow IPC file, .pq for Parquet; in any case)", out, err)
 			}
 			if a, errA := filepath.Abs(in); errA == nil {
 				if b, errB := filepath.Abs(out); errB == nil && a == b {

@@ -335,12 +335,24 @@ Examples:
 			}
 			o.baseOpts = o.read.baseOptions(fs)
 			start := time.Now()
-			doc, err := runLocate(ctx, o, args, progressOn(stderr))
+			// On a terminal, a stage line until the fitting's bar (if
+			// any) takes over.
+			line := newStageLine(stderr, "reading, correcting, demodulating and fitting")
+			defer line.clear()
+			if line != nil {
+				o.readOpts = append(o.readOpts, line.readOption())
+				o.baseOpts = append(o.baseOpts, line.readOption())
+			}
+			doc, err := runLocate(ctx, o, args, line.handOff(progressOn(stderr)))
+			line.clear()
 			if err != nil {
 				return err
 			}
 			if o.out != "" {
-				if err := writeResults(ctx, o.out, doc, o.keepNames); err != nil {
+				line := newStageLine(stderr, "writing "+o.out)
+				err := writeResults(ctx, o.out, doc, o.keepNames)
+				line.clear()
+				if err != nil {
 					return err
 				}
 			} else if err := ctx.Err(); err != nil {
