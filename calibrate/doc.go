@@ -77,8 +77,9 @@
 //
 // # Order of the stages
 //
-// Sensor calibration belongs to the sensor frame, so the order is: despike,
-// apply the calibration, tilt to east-north-up, base-station correction,
+// Sensor calibration belongs to the sensor frame, so the order (that of
+// the locate command) is: apply the calibration, tilt to east-north-up,
+// despike (or only look for spikes and warn), base-station correction,
 // then demodulation (AC) or the DC fit downstream.
 //
 // # AC demodulation

@@ -6,6 +6,8 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"os"
+	"path/filepath"
 	"strings"
 
 	"github.com/spf13/pflag"
@@ -50,12 +52,17 @@ median |B| is far from the Earth's field gets a warning (a unit is probably
 wrong), and one impossibly far (below 1 pT or above 0.1 T) is refused
 unless --unit gives the field's unit.
 
+In the examples, spin.csv and cal.json are the spin log and the
+calibration of the walk-through in README.md; the logs in
+testdata/examples are small invented ones of the same site (a logger's
+spin in uT under its own column names, a flip pair, a shielded log).
+
 Examples:
-  undercurrent calibrate --spin harrow-fen-spin.csv -o harrow-fen-cal.json
-  undercurrent calibrate --spin spin.csv --reference 49850 --refine -o cal.json
-  undercurrent calibrate --spin spin.csv --column bx=magX,by=magY,bz=magZ --unit bx=uT,by=uT,bz=uT -o cal.json
-  undercurrent calibrate --flip0 north.csv --flip180 south.csv -o cal.json
-  undercurrent calibrate --zero shield.csv -o cal.json --json
+  undercurrent calibrate --spin spin.csv -o cal.json
+  undercurrent calibrate --spin spin.csv --reference 50095.4 --refine -o cal-refined.json
+  undercurrent calibrate --spin testdata/examples/kestrel-moor-spin-uT.csv --column bx=magX,by=magY,bz=magZ --unit bx=uT,by=uT,bz=uT -o cal-uT.json
+  undercurrent calibrate --flip0 testdata/examples/kestrel-moor-flip0.csv --flip180 testdata/examples/kestrel-moor-flip180.csv -o cal-flip.json
+  undercurrent calibrate --zero testdata/examples/kestrel-moor-shield.csv -o cal-zero.json --json
   undercurrent calibrate --show cal.json`,
 		setFlags: func(fs *pflag.FlagSet) {
 			fs.StringVar(&spin, "spin", "", "spin log for the ellipsoid fit")
@@ -103,7 +110,29 @@ Examples:
 			if fs.Changed("flip-axis") && flip0 == "" {
 				return usageErrorf("--flip-axis is for the flip method (--flip0 and --flip180)")
 			}
+			if fs.Changed("refine") && spin == "" {
+				return usageErrorf("--refine is for the spin method (--spin)")
+			}
+			if show != "" {
+				// --show reads a calibration file, not a log, and writes
+				// nothing: only --json applies.
+				var extra string
+				fs.Visit(func(f *pflag.Flag) {
+					if extra == "" && f.Name != "show" && f.Name != "json" {
+						extra = "--" + f.Name
+						if f.Shorthand != "" {
+							extra = "-" + f.Shorthand + " (" + extra + ")"
+						}
+					}
+				})
+				if extra != "" {
+					return usageErrorf("%s does not apply to --show, which prints a saved calibration file (with --json as JSON) and writes nothing", extra)
+				}
+			}
 			if out != "" {
+				if fi, err := os.Stat(out); err == nil && fi.IsDir() {
+					return usageErrorf("-o %s: is a directory: give the calibration file's name (-o %s)", out, filepath.Join(out, "cal.json"))
+				}
 				if err := checkOutFile("-o", out, false); err != nil {
 					return err
 				}
@@ -111,6 +140,11 @@ Examples:
 			opts, err := rf.options(fs)
 			if err != nil {
 				return err
+			}
+			if !fs.Changed("time-order") {
+				// No method uses time: a log without a time column
+				// still needs one, but its order is not checked.
+				opts = append(opts, ingest.WithTimeOrder(ingest.TimeAnyOrder))
 			}
 			// sensor is the sensor the logs name in their metadata, kept in
 			// the calibration file so that locate can tell a log of another

@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"io/fs"
 	"os"
 	"sort"
 	"strings"
@@ -86,12 +87,18 @@ func (c *command) printHelp(w io.Writer, fs *pflag.FlagSet) {
 const interruptHelp = `Ctrl-C (SIGINT) or SIGTERM stops the command at the next stage (between
 batches while reading); it prints "interrupted", writes no output (files
 and directories appear whole or not at all) and exits with status 130
-(SIGINT) or 143 (SIGTERM).`
+(SIGINT) or 143 (SIGTERM).` + "\n" + tempHelp
 
 // simulateInterruptHelp is interruptHelp for simulate, which reads no log.
 const simulateInterruptHelp = `Ctrl-C (SIGINT) or SIGTERM stops the command before it writes anything; it
 prints "interrupted", writes no output (each file appears whole or not at
-all) and exits with status 130 (SIGINT) or 143 (SIGTERM).`
+all) and exits with status 130 (SIGINT) or 143 (SIGTERM).` + "\n" + tempHelp
+
+// tempHelp says what becomes of the temporary names outputs are written
+// under when a run is killed outright (see removeStaleTemps).
+const tempHelp = `A run killed outright (kill -9, a power cut) can leave a hidden
+temporary file or directory (.NAME.tmp..., .NAME.old-...) beside an
+output NAME; the next run writing NAME removes those untouched for an hour.`
 
 // exitHelp lists the exit statuses.
 const exitHelp = `Exit status: 0 on success; 1 on failure (input that cannot be read or
@@ -160,12 +167,16 @@ func run(ctx context.Context, args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintf(stderr, "run \"undercurrent help %s\" for usage\n", name)
 		return 2
 	}
+	// Temporary files that a run killed outright (kill -9, a power cut)
+	// left beside this run's outputs are removed once stale.
+	removeStaleTemps(outputPaths(name, fs, fs.Args()))
 	if err := c.run(ctx, fs, fs.Args(), stdout, stderr); err != nil {
 		if ctx.Err() != nil && isInterrupt(err) {
 			fmt.Fprintf(stderr, "undercurrent %s: interrupted\n", name)
 			return interruptStatus(ctx)
 		}
-		fmt.Fprintf(stderr, "undercurrent %s: %s\n", name, cleanMessage(name, fs.Args(), err.Error()))
+		msg := readErrorWording(err, inputPaths(name, fs, fs.Args()))
+		fmt.Fprintf(stderr, "undercurrent %s: %s\n", name, cleanMessage(name, fs.Args(), msg))
 		var we *warnedError
 		if errors.As(err, &we) {
 			// What was noticed before the failure, often its explanation,
@@ -182,6 +193,61 @@ func run(ctx context.Context, args []string, stdout, stderr io.Writer) int {
 		return 1
 	}
 	return 0
+}
+
+// readErrorWording returns err's message with an input file that cannot
+// be opened or read worded one way, "FILE: cannot read: REASON", whether
+// the failure was reported by ingest ("FILE: cannot open: REASON") or by
+// the operating system ("open FILE: REASON", "read FILE: is a
+// directory"). Only the files in inputs (the command's input paths) are
+// reworded: an output that cannot be opened is a failed write, not a read.
+func readErrorWording(err error, inputs map[string]bool) string {
+	msg := err.Error()
+	var pe *fs.PathError
+	if errors.As(err, &pe) && (pe.Op == "open" || pe.Op == "read") && inputs[pe.Path] {
+		if i := strings.Index(msg, pe.Error()); i >= 0 {
+			msg = msg[:i] + pe.Path + ": cannot read: " + pe.Err.Error() + msg[i+len(pe.Error()):]
+		}
+	}
+	return strings.Replace(msg, ": cannot open: ", ": cannot read: ", 1)
+}
+
+// outputFlags are the flags that name files or directories a command
+// writes; every other flag's value and every argument but convert's OUT
+// may name an input.
+var outputFlags = map[string]bool{"output": true, "base-log": true, "truth": true, "data": true}
+
+// inputPaths returns the values of the flags given and the arguments that
+// can name a command's input files.
+func inputPaths(name string, flags *pflag.FlagSet, args []string) map[string]bool {
+	in := map[string]bool{}
+	flags.Visit(func(f *pflag.Flag) {
+		if !outputFlags[f.Name] {
+			in[f.Value.String()] = true
+		}
+	})
+	for i, a := range args {
+		if name == "convert" && i == 1 {
+			continue
+		}
+		in[a] = true
+	}
+	return in
+}
+
+// outputPaths returns the files and directories a command was asked to
+// write.
+func outputPaths(name string, flags *pflag.FlagSet, args []string) []string {
+	var out []string
+	for _, n := range []string{"output", "base-log", "truth"} {
+		if f := flags.Lookup(n); f != nil && f.Value.String() != "" {
+			out = append(out, f.Value.String())
+		}
+	}
+	if name == "convert" && len(args) == 2 {
+		out = append(out, args[1])
+	}
+	return out
 }
 
 // warnedError is an error that follows warnings gathered before it (a

@@ -23,18 +23,24 @@ func init() {
 		long: `Convert reads IN (CSV, Arrow IPC file or stream, Parquet or IAGA-2002,
 detected from the content), maps it to the canonical columns (time, x, y,
 z in metres ENU, bx, by, bz in nT, group, ...) and writes OUT in the format
-given by its extension: .csv, .arrow (Arrow IPC file), .arrows (Arrow IPC
-stream) or .parquet, in any case; OUT's directory must exist. A conversion between these formats keeps every value
-exactly, with the frame, the WGS84 origin and header fields. OUT is
+given by its extension, in any case: .csv or .txt (CSV), .arrow, .feather
+or .ipc (Arrow IPC file), .arrows (Arrow IPC stream), or .parquet or .pq
+(Parquet); OUT's directory must exist. A conversion between these formats
+keeps every value exactly, with the frame, the WGS84 origin and header
+fields. OUT is
 written under a temporary name and renamed, so a failure leaves nothing
 half-written. Missing values (NaN) are carried over unless --strict
 refuses them or --drop-missing drops their rows. It warns when the log has
 no readings, or when the field's median |B| is far from the Earth's field
 (a unit is probably wrong; see "undercurrent inspect").
 
+In the examples, survey.csv is the survey log of the walk-through in
+README.md, and testdata/examples/kestrel-moor-logger.csv an invented
+logger's traverse with its field in uT under its own column names.
+
 Examples:
-  undercurrent convert harrow-fen-traverse.csv harrow-fen-traverse.parquet
-  undercurrent convert --column bx=Bx_uT,by=By_uT,bz=Bz_uT logger.csv fenwick-lane.arrow
+  undercurrent convert survey.csv survey.parquet
+  undercurrent convert --column bx=fluxE,by=fluxN,bz=fluxU --unit bx=uT,by=uT,bz=uT testdata/examples/kestrel-moor-logger.csv logger.arrow
   undercurrent convert ../shared/data/iaga2002/bou20141101vmin.min base.arrows`,
 		setFlags: func(fs *pflag.FlagSet) {
 			rf.add(fs)
@@ -50,7 +56,8 @@ Examples:
 				return usageErrorf("give --strict (refuse missing values) or --drop-missing (drop their rows), not both")
 			}
 			if err := checkLogExt(out); err != nil {
-				return usageErrorf("OUT %s: %v", out, err)
+				// checkLogExt's message, with the other spellings.
+				return usageErrorf("OUT %s: %v (or .txt for CSV, .feather or .ipc for an Arrow IPC file, .pq for Parquet; in any case)", out, err)
 			}
 			if a, errA := filepath.Abs(in); errA == nil {
 				if b, errB := filepath.Abs(out); errB == nil && a == b {

@@ -36,9 +36,13 @@ and the unit of the values shown, after conversion: fields in nT,
 positions in metres ENU, times in seconds (as UTC dates when they are Unix
 times).
 
+In the examples, survey.csv is the survey log of the walk-through in
+README.md, and testdata/examples/kestrel-moor-logger.csv an invented
+logger's traverse with its field in uT under its own column names.
+
 Examples:
-  undercurrent inspect harrow-fen-traverse.csv
-  undercurrent inspect --column bx=Bx_uT,by=By_uT,bz=Bz_uT fenwick-lane.csv
+  undercurrent inspect survey.csv
+  undercurrent inspect --column bx=fluxE,by=fluxN,bz=fluxU --unit bx=uT,by=uT,bz=uT testdata/examples/kestrel-moor-logger.csv
   undercurrent inspect --json ../shared/data/iaga2002/bou20141101vmin.min`,
 		setFlags: func(fs *pflag.FlagSet) {
 			rf.add(fs)

@@ -120,7 +120,7 @@ func TestInspectErrors(t *testing.T) {
 	}{
 		{"no file", []string{"inspect"}, 2, "inspect takes one FILE"},
 		{"bad cell", []string{"inspect", bad}, 1, "undercurrent inspect: " + bad + `:3: column bz: "1oo.0" is not a number`},
-		{"absent file", []string{"inspect", filepath.Join(t.TempDir(), "none.csv")}, 1, "cannot open: no such file"},
+		{"absent file", []string{"inspect", filepath.Join(t.TempDir(), "none.csv")}, 1, "cannot read: no such file"},
 		{"bad origin", []string{"inspect", "--origin", "north", bad}, 2, "--origin"},
 		{"bad mapping", []string{"inspect", "--columns", "bq=B", bad}, 2, `--column "bq=B": want canonical=source`},
 	}

@@ -300,7 +300,8 @@ written whole or not at all, and its parent must exist. An existing DIR
 is replaced only when it holds nothing but those files: a DIR holding any
 other file is refused (a usage error, before any work), so that a mistyped
 -o cannot replace unrelated work. --json prints the result document on
-stdout. Without either it prints a summary.
+stdout, and its warnings on stderr as well. Without either it prints a
+summary.
 
 The estimates are not a verified locate: confirm before excavation by
 approved methods, treat every conductor as live; local codes and licensed
@@ -334,18 +335,35 @@ Examples:
 			}
 			o.baseOpts = o.read.baseOptions(fs)
 			start := time.Now()
-			doc, err := runLocate(ctx, o, args, progressOn(stderr))
+			// On a terminal, a stage line until the fitting's bar (if
+			// any) takes over.
+			line := newStageLine(stderr, "reading, correcting, demodulating and fitting")
+			defer line.clear()
+			if line != nil {
+				o.readOpts = append(o.readOpts, line.readOption())
+				o.baseOpts = append(o.baseOpts, line.readOption())
+			}
+			doc, err := runLocate(ctx, o, args, line.handOff(progressOn(stderr)))
+			line.clear()
 			if err != nil {
 				return err
 			}
 			if o.out != "" {
-				if err := writeResults(ctx, o.out, doc, o.keepNames); err != nil {
+				line := newStageLine(stderr, "writing "+o.out)
+				err := writeResults(ctx, o.out, doc, o.keepNames)
+				line.clear()
+				if err != nil {
 					return err
 				}
 			} else if err := ctx.Err(); err != nil {
 				return err
 			}
 			if o.json {
+				// The warnings are in the document too, but stdout is
+				// usually a file then: the operator sees them here.
+				for _, w := range doc.Warnings {
+					fmt.Fprintf(stderr, "warning: %s\n", w)
+				}
 				return report.WriteJSON(stdout, doc)
 			}
 			printSummary(stdout, doc, time.Since(start))

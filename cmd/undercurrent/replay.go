@@ -56,12 +56,14 @@ partial). With --now the log is shifted by whole minutes, so windows line
 up as in the log; times more than --max-ahead ahead of the clock are held
 back until they are not, since the pipeline refuses them.
 
-Examples (the site file testdata/site/harrow-fen.toml asks for a user and
+Examples (recorded.arrows is written by "undercurrent simulate
+testdata/scenarios/harrow-fen-fixed.toml -o recorded.arrows", as in
+README.md; the site file testdata/site/harrow-fen.toml asks for a user and
 password; give the publisher's, or leave them out for a broker without
 accounts):
-  undercurrent replay fenwick-2025-11-30.arrows --asset fenwick-lane --speed 1 --user pipeline --password change-me-pipeline
-  undercurrent replay km-a.csv --asset kestrel-moor --sensor km-a --speed 0 --format arrow
-  undercurrent replay fenwick.csv --asset fenwick-lane --now --broker nats://127.0.0.1:4222`,
+  undercurrent replay recorded.arrows --asset fenwick-lane --speed 1 --user pipeline --password change-me-pipeline
+  undercurrent replay recorded.arrows --asset fenwick-lane --sensor fl-w1 --speed 0 --format arrow --user pipeline --password change-me-pipeline
+  undercurrent replay recorded.arrows --asset fenwick-lane --now --broker nats://127.0.0.1:4222 --user pipeline --password change-me-pipeline`,
 		setFlags: func(fs *pflag.FlagSet) {
 			fs.StringVar(&o.asset, "asset", "", "asset `NAME` in the site file (required)")
 			fs.StringVar(&o.sensor, "sensor", "", "sensor `NAME` for a log without a group column, or to send one group only")

@@ -80,6 +80,9 @@ Examples:
 			if baseOut != "" && sc.Base == nil {
 				return fmt.Errorf("%s has no [base] table, so there is no base-station log to write", args[0])
 			}
+			// On a terminal, a stage line until the first file is written.
+			line := newStageLine(stderr, "simulating "+args[0])
+			defer line.clear()
 			s, err := await(ctx, func() (*ingest.Samples, error) { return simulate.Simulate(sc) })
 			if err != nil {
 				return err
@@ -95,9 +98,11 @@ Examples:
 			if err := ctx.Err(); err != nil {
 				return err
 			}
+			line.set(fmt.Sprintf("writing %s (%d rows)", out, s.Len()))
 			if err := writeSamplesLog(out, s); err != nil {
 				return err
 			}
+			line.clear()
 			switch n := len(sc.Lines()); {
 			case sc.Survey.Pattern == "spin":
 				fmt.Fprintf(stdout, "wrote %s: %d readings of a sensor turned in place over %s\n", out, s.Len(), span(s.Time))

@@ -1,0 +1,83 @@
+package main
+
+import (
+	"os"
+	"path/filepath"
+	"regexp"
+	"time"
+)
+
+// Every output is written under a temporary name beside it and renamed
+// into place, so that it appears whole or not at all:
+//
+//	.NAME.tmpDIGITS[.EXT]  a file (ingest.WriteFileAtomic, writeLog)
+//	.NAME.tmp-DIGITS       a result directory being filled (stageDir)
+//	.NAME.old-DIGITS       an earlier result directory being replaced
+//
+// A run that fails or is interrupted (Ctrl-C, SIGTERM) removes its own;
+// one killed outright (kill -9, a power cut) cannot. The next run asked to
+// write NAME removes those of NAME that are stale: untouched for
+// staleTempAge, far longer than any file or directory stays open for
+// writing (a file being written is touched by every write, a directory by
+// every file made in it), so the temporary files of a run still going are
+// never taken.
+const staleTempAge = time.Hour
+
+// tempSuffix matches what follows ".NAME" in a temporary name.
+var tempSuffix = regexp.MustCompile(`^\.(tmp[0-9]+(\.[A-Za-z0-9]+)?|tmp-[0-9]+|old-[0-9]+)$`)
+
+// staleTemps returns the temporary files and directories of the output
+// path that are older than age at now.
+func staleTemps(path string, age time.Duration, now time.Time) []string {
+	path = filepath.Clean(path)
+	dir, base := filepath.Dir(path), filepath.Base(path)
+	entries, err := os.ReadDir(dir)
+	if err != nil {
+		return nil
+	}
+	prefix := "." + base
+	var stale []string
+	for _, e := range entries {
+		n := e.Name()
+		if len(n) <= len(prefix) || n[:len(prefix)] != prefix || !tempSuffix.MatchString(n[len(prefix):]) {
+			continue
+		}
+		p := filepath.Join(dir, n)
+		if newest(p).After(now.Add(-age)) {
+			continue
+		}
+		stale = append(stale, p)
+	}
+	return stale
+}
+
+// newest returns the latest modification time of p and, for a directory,
+// of the entries in it (the zero time when p cannot be read: it is left
+// alone only when something in it is recent).
+func newest(p string) time.Time {
+	fi, err := os.Lstat(p)
+	if err != nil {
+		return time.Time{}
+	}
+	t := fi.ModTime()
+	if fi.IsDir() {
+		entries, _ := os.ReadDir(p)
+		for _, e := range entries {
+			if info, err := e.Info(); err == nil && info.ModTime().After(t) {
+				t = info.ModTime()
+			}
+		}
+	}
+	return t
+}
+
+// removeStaleTemps removes the stale temporary files and directories of
+// each output path. It is quiet: what it removes was never an output.
+func removeStaleTemps(paths []string) {
+	now := time.Now()
+	for _, p := range paths {
+		for _, t := range staleTemps(p, staleTempAge, now) {
+			os.RemoveAll(t)
+		}
+	}
+}
