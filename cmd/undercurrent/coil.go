@@ -415,7 +415,7 @@ func (c *coilFlags) load(doc *report.Document, freq float64) error {
 		msg := strings.TrimPrefix(err.Error(), "calibrate: ")
 		msg = strings.TrimPrefix(msg, "coil response ")
 		if errors.Is(err, fs.ErrNotExist) {
-			return usageErrorf("--coil-response %s: no such file (the coil's response table: frequency_hz,sensitivity_v_per_nt,phase_deg)", c.response)
+			return fmt.Errorf("%s: cannot read: no such file (--coil-response, the coil's response table: frequency_hz,sensitivity_v_per_nt,phase_deg)", c.response)
 		}
 		if !strings.HasPrefix(msg, c.response) {
 			msg = c.response + ": " + msg

@@ -547,9 +547,10 @@ func TestLocateCoilRefusals(t *testing.T) {
 	if code != 2 || !strings.Contains(stderr, "--coil-response "+narrow+": the table covers 400-600 Hz") || !strings.Contains(stderr, "--freq 50 Hz") {
 		t.Errorf("a table without 50 Hz: exit %d, %s", code, stderr)
 	}
-	// A missing table names the flag.
+	// A missing table names the file and the flag, and exits 1 as every
+	// unreadable input does.
 	code, _, stderr = cli(t, "locate", "--freq", "50", "--coil-response", filepath.Join(dir, "absent.csv"), log)
-	if code != 2 || !strings.Contains(stderr, "--coil-response "+filepath.Join(dir, "absent.csv")+": no such file") {
+	if code != 1 || !strings.Contains(stderr, filepath.Join(dir, "absent.csv")+": cannot read: no such file (--coil-response") {
 		t.Errorf("a missing table: exit %d, %s", code, stderr)
 	}
 }
