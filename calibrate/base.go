@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"strings"
 	"time"
 )
 
@@ -16,17 +17,34 @@ type BaseSettings struct {
 	// RefMode is "median" (default: the median of each base component over
 	// the whole base record) or "first" (the first valid value).
 	RefMode string
-	// MaxGap is the longest stretch of base record, s, interpolated across
-	// without a warning. Zero means five base sample intervals.
+	// MaxGap is the longest gap in the base record, s, that rover readings
+	// may fall in: they are interpolated linearly across it. The default
+	// limit, used when MaxGap is zero, is five base sample intervals, at
+	// most MaxGapCeiling; a positive MaxGap allows longer gaps up to it
+	// (with a warning), never fewer; a negative value interpolates across
+	// any gap. A rover reading in a longer gap is an error, for the same
+	// reason as one too far outside the record (MaxHold): a straight line
+	// across minutes of missing base record misses the variation in them.
 	MaxGap float64
 	// MaxHold is the longest time, s, by which a rover row may lie before
 	// or after the base record and still be corrected, with the base's
 	// nearest value held (and a warning). A row further out is an error:
 	// the diurnal variation moves by nanotesla in minutes, and a value held
-	// that long is no correction. Zero means MaxGap; a negative value holds
+	// that long is no correction. Zero means the default gap limit (five
+	// base sample intervals, at most MaxGapCeiling); a negative value holds
 	// the nearest value for any time.
 	MaxHold float64
 }
+
+// MaxGapCeiling is the most the default gap and hold limits allow, s,
+// whatever the base record's own sampling: five intervals of one-minute
+// observatory data (the coarsest base record in common use, IAGA-2002
+// minute values). Geomagnetic pulsations of class Pc5 have periods of 150
+// to 600 s (IAGA classification of continuous pulsations, Jacobs et al.,
+// J. Geophys. Res. 69, 1964) and the diurnal variation moves by up to
+// 8 nT a minute (Boulder, November 2014, in DOMAIN.md): a straight line
+// across a longer gap, or a value held for longer, is no correction.
+const MaxGapCeiling = 300.0
 
 // BaseReport says what the base-station correction did.
 type BaseReport struct {
@@ -34,7 +52,8 @@ type BaseReport struct {
 	Reference [3]float64
 	// Covered counts rover rows inside the base record; Outside those
 	// before or after it (corrected with the nearest base value held);
-	// InGap those inside a base gap longer than MaxGap (interpolated).
+	// InGap those inside a base gap longer than the default limit but
+	// allowed by MaxGap (interpolated, with a warning).
 	Covered, Outside, InGap int
 	// Range is the range (max - min) of the departure applied per
 	// component and MaxAbs its largest magnitude, nT.
@@ -60,19 +79,55 @@ func cleanSeries(t, v []float64) baseSeries {
 }
 
 // at interpolates linearly at time x, holding the end values outside.
-// It also returns whether x is outside and the bracketing interval.
-func (s baseSeries) at(x float64) (v float64, outside bool, gap float64) {
+// It also returns whether x is outside, the length of the bracketing
+// interval (0 at a base reading's own time) and the index of the base
+// reading that ends it.
+func (s baseSeries) at(x float64) (v float64, outside bool, gap float64, end int) {
 	n := len(s.t)
 	i := sort.SearchFloat64s(s.t, x) // first t >= x
 	switch {
+	case i < n && s.t[i] == x:
+		return s.v[i], false, 0, i
 	case i == 0:
-		return s.v[0], x < s.t[0], 0
+		return s.v[0], true, 0, 0
 	case i == n:
-		return s.v[n-1], true, 0
+		return s.v[n-1], true, 0, n
 	}
 	t0, t1 := s.t[i-1], s.t[i]
 	f := (x - t0) / (t1 - t0)
-	return s.v[i-1] + f*(s.v[i]-s.v[i-1]), false, t1 - t0
+	return s.v[i-1] + f*(s.v[i]-s.v[i-1]), false, t1 - t0, i
+}
+
+// baseGap is one gap of a base record that rover rows fall in.
+type baseGap struct {
+	t0, t1 float64
+	axes   [3]bool // the components missing in it
+	rows   int     // rover rows in it
+}
+
+// describeGaps words the gaps rover rows fall in for messages: the first
+// three in time, and how many more.
+func describeGaps(gaps []*baseGap) string {
+	sort.Slice(gaps, func(a, b int) bool { return gaps[a].t0 < gaps[b].t0 })
+	var parts []string
+	for i, g := range gaps {
+		if i == 3 {
+			parts = append(parts, fmt.Sprintf("and %d more", len(gaps)-3))
+			break
+		}
+		what := ""
+		if !(g.axes[0] && g.axes[1] && g.axes[2]) {
+			var names []string
+			for k, ok := range g.axes {
+				if ok {
+					names = append(names, fieldNames[k])
+				}
+			}
+			what = ", in " + strings.Join(names, " and ")
+		}
+		parts = append(parts, fmt.Sprintf("from %s to %s (%g s%s; %d rover %s)", fmtTime(g.t0), fmtTime(g.t1), math.Round((g.t1-g.t0)*1e3)/1e3, what, g.rows, map[bool]string{true: "reading", false: "readings"}[g.rows == 1]))
+	}
+	return strings.Join(parts, ", ")
 }
 
 // BaseCorrectColumns subtracts from the rover field columns (nT, ENU, in
@@ -121,18 +176,27 @@ func BaseCorrectColumns(roverName string, rt []float64, rb [3][]float64, baseNam
 	default:
 		return nil, fmt.Errorf("calibrate: base correction: reference mode %q, want \"median\" or \"first\"", bs.RefMode)
 	}
-	maxGap := bs.MaxGap
-	if maxGap == 0 {
-		d := make([]float64, 0, len(series[0].t)-1)
-		for i := 1; i < len(series[0].t) && i < 10000; i++ {
-			d = append(d, series[0].t[i]-series[0].t[i-1])
-		}
-		maxGap = 5 * median(d, nil)
+	// The default gap limit: five base sample intervals, at most
+	// MaxGapCeiling.
+	d := make([]float64, 0, len(series[0].t)-1)
+	for i := 1; i < len(series[0].t) && i < 10000; i++ {
+		d = append(d, series[0].t[i]-series[0].t[i-1])
 	}
-
+	step := median(d, nil)
+	defGap, defWhy := 5*step, fmt.Sprintf("five base sample intervals of %g s", math.Round(step*1e6)/1e6)
+	if defGap > MaxGapCeiling {
+		defGap, defWhy = MaxGapCeiling, fmt.Sprintf("the default ceiling, whatever the base's own sampling interval, here %g s", math.Round(step*1e6)/1e6)
+	}
+	maxGap, why := defGap, defWhy
+	switch {
+	case bs.MaxGap < 0:
+		maxGap = math.Inf(1)
+	case bs.MaxGap > maxGap:
+		maxGap, why = bs.MaxGap, "the limit allowed"
+	}
 	maxHold := bs.MaxHold
 	if maxHold == 0 {
-		maxHold = maxGap
+		maxHold = defGap
 	}
 
 	rlo, rhi := math.Inf(1), math.Inf(-1)
@@ -165,30 +229,71 @@ func BaseCorrectColumns(roverName string, rt []float64, rb [3][]float64, baseNam
 			baseName, fmtTime(blo), fmtTime(bhi), roverName, fmtTime(rlo), fmtTime(rhi), far, len(rt), fmtTime(rt[first]), math.Round(maxHold*1e6)/1e6)
 	}
 
+	// Rover rows in gaps longer than the limit are refused before any row
+	// is changed.
+	type gapKey struct{ t0, t1 float64 }
+	long, allowed := map[gapKey]*baseGap{}, 0
+	var inLong []int
+	for i, t := range rt {
+		in, wide := false, false
+		seen := map[gapKey]bool{}
+		for k := 0; k < 3; k++ {
+			_, _, g, end := series[k].at(t)
+			if g > defGap {
+				wide = true
+			}
+			if g <= maxGap {
+				continue
+			}
+			in = true
+			key := gapKey{series[k].t[end-1], series[k].t[end]}
+			bg := long[key]
+			if bg == nil {
+				bg = &baseGap{t0: key.t0, t1: key.t1}
+				long[key] = bg
+			}
+			bg.axes[k] = true
+			if !seen[key] {
+				seen[key] = true
+				bg.rows++
+			}
+		}
+		if in {
+			inLong = append(inLong, i)
+		} else if wide {
+			allowed++
+		}
+	}
+	if len(inLong) > 0 {
+		gaps := make([]*baseGap, 0, len(long))
+		for _, g := range long {
+			gaps = append(gaps, g)
+		}
+		return nil, fmt.Errorf("calibrate: base correction: base record %s has %s longer than %g s (%s) while the rover log %s was recorded: %d of %d readings, from %s to %s, fall in the %s %s. A straight line across the gap is no correction (the diurnal variation and pulsations move the field by nanotesla in minutes); give a base record without the gap, or allow interpolation across it (locate --base-hold SECONDS)",
+			baseName, map[bool]string{true: "a gap", false: "gaps"}[len(gaps) == 1], math.Round(maxGap*1e6)/1e6, why, roverName,
+			len(inLong), len(rt), fmtTime(rt[inLong[0]]), fmtTime(rt[inLong[len(inLong)-1]]), map[bool]string{true: "gap", false: "gaps"}[len(gaps) == 1], describeGaps(gaps))
+	}
+
 	var lo, hi [3]float64
 	for k := range lo {
 		lo[k], hi[k] = math.Inf(1), math.Inf(-1)
 	}
 	for i, t := range rt {
-		out, inGap := false, false
+		out := false
 		for k := 0; k < 3; k++ {
-			v, o, g := series[k].at(t)
+			v, o, _, _ := series[k].at(t)
 			out = out || o
-			inGap = inGap || g > maxGap
 			d := v - rep.Reference[k]
 			rb[k][i] -= d
 			lo[k], hi[k] = math.Min(lo[k], d), math.Max(hi[k], d)
 		}
-		switch {
-		case out:
+		if out {
 			rep.Outside++
-		case inGap:
-			rep.InGap++
-			rep.Covered++
-		default:
+		} else {
 			rep.Covered++
 		}
 	}
+	rep.InGap = allowed
 	for k := 0; k < 3; k++ {
 		rep.Range[k] = hi[k] - lo[k]
 		rep.MaxAbs[k] = math.Max(math.Abs(lo[k]), math.Abs(hi[k]))
@@ -213,7 +318,7 @@ func BaseCorrectColumns(roverName string, rt []float64, rb [3][]float64, baseNam
 	}
 	if rep.InGap > 0 {
 		rep.Warnings = append(rep.Warnings, fmt.Sprintf(
-			"%d rover rows fall in gaps of base record %s longer than %g s: interpolated across the gap", rep.InGap, baseName, maxGap))
+			"%d rover rows fall in gaps of base record %s longer than %g s (%s), up to %g s: interpolated across the gaps, as allowed", rep.InGap, baseName, math.Round(defGap*1e6)/1e6, defWhy, math.Round(maxGap*1e6)/1e6))
 	}
 	return rep, nil
 }
@@ -225,4 +330,67 @@ func fmtTime(t float64) string {
 		return time.Unix(int64(sec), int64(frac*1e9)).UTC().Format("2006-01-02T15:04:05Z")
 	}
 	return fmt.Sprintf("%g s", t)
+}
+
+// BaseSpikes says what DespikeBaseColumns took out of a base record.
+type BaseSpikes struct {
+	// Rows are the indices of the rows taken out, in order.
+	Rows []int
+	// Runs words them as runs of consecutive readings with their times,
+	// the first five runs and how many more, for messages.
+	Runs string
+}
+
+// DespikeBaseColumns finds spikes in a base record (times bt in seconds,
+// increasing; field columns bb in nT) with the Hampel filter of FindSpikes
+// and sets all three field values of each spiked row to NaN, in place, so
+// that the base correction interpolates across them from the readings
+// either side. A base station stands still in a field that changes
+// smoothly: a reading far off the running median of its neighbours is a
+// disturbance at the base (a passing vehicle, a logger glitch) that would
+// otherwise be subtracted from every rover reading taken at that moment.
+// Missing values are not spikes. It returns nil when there are none.
+func DespikeBaseColumns(bt []float64, bb [3][]float64, set *DespikeSettings) (*BaseSpikes, error) {
+	for k := 0; k < 3; k++ {
+		if len(bb[k]) != len(bt) {
+			return nil, fmt.Errorf("calibrate: base despike: field column %d has %d rows, time has %d", k, len(bb[k]), len(bt))
+		}
+	}
+	flag, _, _, err := FindSpikes([][]float64{bb[0], bb[1], bb[2]}, set)
+	if err != nil {
+		return nil, err
+	}
+	var rows []int
+	for i, f := range flag {
+		if f && finite(bb[0][i]) && finite(bb[1][i]) && finite(bb[2][i]) {
+			rows = append(rows, i)
+		}
+	}
+	if len(rows) == 0 {
+		return nil, nil
+	}
+	for _, i := range rows {
+		bb[0][i], bb[1][i], bb[2][i] = math.NaN(), math.NaN(), math.NaN()
+	}
+	var runs []string
+	nRuns := 0
+	for a := 0; a < len(rows); {
+		b := a
+		for b+1 < len(rows) && rows[b+1] == rows[b]+1 {
+			b++
+		}
+		nRuns++
+		if nRuns <= 5 {
+			if a == b {
+				runs = append(runs, fmtTime(bt[rows[a]]))
+			} else {
+				runs = append(runs, fmt.Sprintf("%s to %s (%d readings)", fmtTime(bt[rows[a]]), fmtTime(bt[rows[b]]), b-a+1))
+			}
+		}
+		a = b + 1
+	}
+	if nRuns > 5 {
+		runs = append(runs, fmt.Sprintf("and %d more", nRuns-5))
+	}
+	return &BaseSpikes{Rows: rows, Runs: strings.Join(runs, ", ")}, nil
 }

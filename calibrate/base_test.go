@@ -151,15 +151,8 @@ func TestBaseCorrectColumnsSynthetic(t *testing.T) {
 	if rep.InGap != 0 || rep.Covered != 4 {
 		t.Errorf("in gap %d, covered %d", rep.InGap, rep.Covered)
 	}
-	// With MaxGap 15 s the rows at 15 s and 25 s fall in that gap.
-	rb = [3][]float64{{1, 1, 1, 1}, {2, 2, 2, 2}, {3, 3, 3, 3}}
-	rep, err = BaseCorrectColumns("rover", rt, rb, "base", bt, bb, &BaseSettings{Reference: &ref, MaxGap: 15})
-	if err != nil {
-		t.Fatal(err)
-	}
-	if rep.InGap != 2 || len(rep.Warnings) != 1 || !strings.Contains(rep.Warnings[0], "gaps") {
-		t.Errorf("in gap %d, warnings %q; want 2 and a gap warning", rep.InGap, rep.Warnings)
-	}
+	// Gaps longer than the default limit: TestBaseGap* in
+	// base_fxbase_test.go.
 	if _, err := BaseCorrectColumns("rover", rt, rb, "base.csv", []float64{0, 10, 10, 30, 40}, bb, nil); err == nil || !strings.Contains(err.Error(), "base.csv: row 2") {
 		t.Errorf("err = %v, want one naming base.csv row 2", err)
 	}

@@ -55,10 +55,16 @@ func ExampleDespike() {
 }
 
 func ExampleBaseCorrect() {
-	// A base station at Harrow Fen substation saw the field rise 6 nT north
-	// over ten minutes; the rover's readings are corrected for it.
-	base := &ingest.Samples{Source: "harrow-fen-base.csv",
-		Time: []float64{0, 600}, Bx: []float64{1500, 1500}, By: []float64{20800, 20806}, Bz: []float64{-47500, -47500}}
+	// A base station at Harrow Fen substation, read every minute, saw the
+	// field rise 6 nT north over ten minutes; the rover's readings are
+	// corrected for it.
+	base := &ingest.Samples{Source: "harrow-fen-base.csv"}
+	for i := range 11 {
+		base.Time = append(base.Time, 60*float64(i))
+		base.Bx = append(base.Bx, 1500)
+		base.By = append(base.By, 20800+6*float64(i)/10)
+		base.Bz = append(base.Bz, -47500)
+	}
 	rover := &ingest.Samples{Source: "fenwick-lane.csv",
 		Time: []float64{300, 600}, Bx: []float64{1620, 1630}, By: []float64{20903, 20906}, Bz: []float64{-47550, -47560}}
 	rep, err := calibrate.BaseCorrect(rover, base, &calibrate.BaseSettings{RefMode: "first"})

@@ -137,6 +137,9 @@ Examples:
 					return err
 				}
 			}
+			if err := checkCalibrationOut(out, [2]string{"--spin", spin}, [2]string{"--flip0", flip0}, [2]string{"--flip180", flip180}, [2]string{"--zero", zero}, [2]string{"--show", show}); err != nil {
+				return err
+			}
 			opts, err := rf.options(fs)
 			if err != nil {
 				return err

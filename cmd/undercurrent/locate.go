@@ -33,6 +33,7 @@ type locateOptions struct {
 	base         string
 	baseHold     float64
 	baseHoldSet  bool // --base-hold given (0 then means no hold at all)
+	baseUnits    []string
 	freq         float64
 	window       float64
 	mainsText    string
@@ -78,7 +79,8 @@ var resultFiles = []string{report.FileJSON, report.FileCSV, report.FileFindings,
 func (o *locateOptions) setFlags(fs *pflag.FlagSet) {
 	fs.StringVar(&o.calibration, "calibration", "", "apply the sensor calibration in `CAL.json` (from undercurrent calibrate)")
 	fs.StringVar(&o.base, "base", "", "subtract the diurnal variation recorded by the base station log `BASE` (any log format, IAGA-2002 too)")
-	fs.Float64Var(&o.baseHold, "base-hold", 0, "correct survey readings up to `S` seconds before or after the base log with its nearest value held (default: five base sample intervals; 0: none; readings further out are refused, since a held value is no correction)")
+	fs.Float64Var(&o.baseHold, "base-hold", 0, "correct survey readings up to `S` seconds before or after the base log with its nearest value held, and interpolate the base across its gaps up to S seconds long (default for both: five base sample intervals, at most 300 s; 0: no hold at all; readings further out, or in a longer gap, are refused, since a held value or a straight line across the gap is no correction)")
+	fs.StringSliceVar(&o.baseUnits, "base-unit", nil, "units of the base log's columns, `CANON=UNIT` as --unit gives them for the survey logs (bx=uT,by=uT,bz=uT); a base log whose field is as steady as the Earth's but whose median lies outside the Earth's field band in nT is refused without it")
 	fs.Float64Var(&o.freq, "freq", 0, "demodulate the AC field at `HZ` (50, 60, 16.7, 512...) and fit RMS currents with phase; the field's own frequency is then estimated from the log, and if it is off (a grid at 50.1 Hz) the log is demodulated at the estimate, with a warning saying so (too far off, it refuses and names the frequency found); without --freq the DC field is fitted (no frequency is estimated and AC is not looked for)")
 	fs.StringVar(&o.mainsText, "mains", "50,60", "with --freq at another frequency than the mains (an injected tracer, 16.7 Hz), fit the mains `HZ` (50, 60, both as 50,60, or none) and their odd harmonics alongside in every window, so that a strong mains field changing as the sensor walks does not leak into the signal as noise")
 	fs.Float64Var(&o.window, "window", 0, "AC demodulation window, `S` seconds (default: ten cycles at 50 or 60 Hz; at any other frequency ten cycles or 0.1 s, whichever is longer, rounded up to a multiple of 0.1 s, so that the window holds whole cycles of the 50 or 60 Hz mains and they do not leak in)")
@@ -477,6 +479,9 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 	}
 	sv := &survey{doc: doc, ac: o.freq > 0}
 	defer func() { err = withWarnings(err, sv.alerts, sv.warnings) }()
+	if len(o.baseUnits) > 0 && o.base == "" {
+		return nil, usageErrorf("--base-unit needs --base")
+	}
 	var cal *calibrate.Calibration
 	if o.calibration != "" {
 		var err error
@@ -496,6 +501,9 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		if bopts == nil {
 			bopts = o.read.baseOptions(nil)
 		}
+		if bopts, err = baseUnitOptions(o, logs, bopts); err != nil {
+			return nil, err
+		}
 		if base, err = readSamples(ctx, o.base, bopts...); err != nil {
 			return nil, err
 		}
@@ -503,10 +511,27 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		for _, w := range base.Warnings {
 			sv.warnings = append(sv.warnings, cliWording(w))
 		}
+		// The base log's field unit is checked as a survey log's is: a
+		// base in uT read as nT made a correction 1000 times too small,
+		// without a word.
+		w, err := checkBaseUnits(ctx, o, base, bopts)
+		if err != nil {
+			return nil, err
+		}
+		if w != "" {
+			sv.warnings = append(sv.warnings, w)
+		}
 		// The base correction interpolates in time: a base log read with
 		// --time-order any or per-group is put in time order first.
 		if back, _ := sortByTime(base); back > 0 {
 			sv.warnings = append(sv.warnings, fmt.Sprintf("%s: time goes backwards at %s (--time-order %s): the base log was put in time order for the base correction", o.base, plural(back, "row"), o.read.timeOrder))
+		}
+		// A spike at the base is subtracted from every survey reading
+		// taken at that moment: it is always looked for, and left out.
+		if w, err := despikeBase(o, base); err != nil {
+			return nil, err
+		} else if w != "" {
+			sv.warnings = append(sv.warnings, w)
 		}
 	}
 	opts := append(append([]ingest.Option(nil), o.readOpts...), o.coil.readOptions()...)
@@ -547,10 +572,22 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			doc.Site = s.Meta["site"]
 		}
 		if cal != nil {
+			// The calibration belongs to the sensor's own axes, the
+			// columns as the file has them. ingest has turned a log read
+			// with --frame ned to east, north, up (x and y swapped, z
+			// negated), so the calibration is turned the same way: applied
+			// to the columns as read it then equals the calibration
+			// applied in the file's axes before the turn. Before, it was
+			// applied to the turned columns as they were and landed on the
+			// wrong axes.
+			c := cal
+			if f, err := ingest.ParseFrame(o.read.frame); err == nil && f == ingest.FrameNED {
+				c = nedToENUCalibration(cal)
+			}
 			// A calibration of another sensor, or a log whose corrected
 			// field disagrees with the calibration's reference.
-			sv.warnings = append(sv.warnings, cal.Check(s)...)
-			if err := cal.Apply(s); err != nil {
+			sv.warnings = append(sv.warnings, c.Check(s)...)
+			if err := c.Apply(s); err != nil {
 				return nil, fmt.Errorf("%s: %w", path, err)
 			}
 		}
@@ -584,11 +621,13 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			}
 		}
 		if base != nil {
-			hold := 0.0 // the default: five base sample intervals
+			hold := 0.0 // the default: five base sample intervals, at most 300 s
 			if o.baseHoldSet {
 				hold = math.Max(o.baseHold, 1e-9) // 0: none at all
 			}
-			rep, err := calibrate.BaseCorrect(s, base, &calibrate.BaseSettings{MaxHold: hold})
+			// --base-hold S allows gaps in the base log up to S seconds
+			// too; the default limit is the same as the hold's.
+			rep, err := calibrate.BaseCorrect(s, base, &calibrate.BaseSettings{MaxHold: hold, MaxGap: o.baseHold})
 			if err != nil {
 				return nil, err
 			}
@@ -629,6 +668,144 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		}
 	}
 	return sv, nil
+}
+
+// baseUnitOptions checks the base log against the survey logs and adds
+// --base-unit to the base log's read options. A base log that is one of
+// the survey logs is refused: it made every departure the survey's own
+// anomaly, and the run reported "no anomaly".
+func baseUnitOptions(o *locateOptions, logs []string, bopts []ingest.Option) ([]ingest.Option, error) {
+	for _, path := range logs {
+		if sameFile(o.base, path) {
+			return nil, usageErrorf("--base %s is the survey log %s itself: the base log is the record of a second magnetometer left in one place during the survey", o.base, path)
+		}
+	}
+	if len(o.baseUnits) == 0 {
+		return bopts, nil
+	}
+	for _, u := range o.baseUnits {
+		for _, p := range strings.Split(u, ",") {
+			k, v, _ := strings.Cut(p, "=")
+			if _, volts := voltScale(v); volts && fieldAxis(k) >= 0 {
+				return nil, usageErrorf("--base-unit %s is a voltage: a base log holds a magnetometer's field", strings.TrimSpace(p))
+			}
+		}
+	}
+	if err := checkOption("--base-unit", "unit ", ingest.WithUnits(o.baseUnits...)); err != nil {
+		return nil, err
+	}
+	return append(append([]ingest.Option(nil), bopts...), ingest.WithUnits(o.baseUnits...)), nil
+}
+
+// checkBaseUnits checks the base log's field magnitude as a survey log's
+// is checked (checkFieldUnits: a warning outside the Earth's band, a
+// refusal beyond what any magnetometer reads), with --base-unit for
+// --unit. A base log is a record of the full field at a station: when
+// its |B| is as steady as the Earth's field (the 10th to 90th percentile
+// within 5% of the median; the largest storms of the space age moved it
+// by about 600 nT, near 1%: Dst -589 nT on 14 March 1989, World Data
+// Center for Geomagnetism, Kyoto) but its median is outside the Earth's
+// band and a field unit would bring it in, the unit is wrong, and the
+// correction would be scaled by the unit's factor: it is refused unless
+// --base-unit gives the unit. An IAGA-2002 file is in nT by its format
+// and is not refused.
+func checkBaseUnits(ctx context.Context, o *locateOptions, base *ingest.Samples, bopts []ingest.Option) (string, error) {
+	given := false
+	for _, u := range o.baseUnits {
+		for _, p := range strings.Split(u, ",") {
+			if k, _, _ := strings.Cut(p, "="); fieldAxis(k) >= 0 {
+				given = true
+			}
+		}
+	}
+	reword := func(s string) string { return strings.ReplaceAll(s, "--unit ", "--base-unit ") }
+	w, err := checkFieldUnits(ctx, o.base, base.Bx, base.By, base.Bz, bopts, given)
+	if err != nil {
+		if isInterrupt(err) {
+			return "", err
+		}
+		return "", errors.New(reword(err.Error()))
+	}
+	w = reword(w)
+	if given || base.Meta["elements"] != "" {
+		return w, nil
+	}
+	var mags []float64
+	step := max(1, base.Len()/(1<<20))
+	for i := 0; i < base.Len(); i += step {
+		if m := math.Sqrt(base.Bx[i]*base.Bx[i] + base.By[i]*base.By[i] + base.Bz[i]*base.Bz[i]); !math.IsNaN(m) && !math.IsInf(m, 0) {
+			mags = append(mags, m)
+		}
+	}
+	if len(mags) < 2 {
+		return w, nil
+	}
+	sort.Float64s(mags)
+	n := len(mags)
+	m := mags[n/2]
+	spread := mags[n*9/10] - mags[n/10]
+	if m >= earthMinNT && m <= earthMaxNT || !(spread <= 0.05*m) {
+		return w, nil
+	}
+	for _, u := range []struct {
+		name   string
+		factor float64 // nT per unit
+	}{{"T", 1e9}, {"mT", 1e6}, {"G", 1e5}, {"uT", 1e3}, {"mG", 1e2}, {"pT", 1e-3}} {
+		if f := m * u.factor; f >= earthMinNT && f <= earthMaxNT {
+			how := fmt.Sprintf("%g times too small", u.factor)
+			if u.factor < 1 {
+				how = fmt.Sprintf("%g times too large", 1/u.factor)
+			}
+			return "", fmt.Errorf("%s: the base log's median |B| is %.4g nT, outside %s, yet as steady as a record of the Earth's field (90%% of readings within %.2g%% of each other): its field columns are probably in %s, and read as nT they would make the base correction %s. Refused: give their unit with --base-unit bx=%s,by=%s,bz=%s (or --base-unit bx=nT,by=nT,bz=nT if nT is right)",
+				o.base, m, earthBand, 100*spread/m, u.name, how, u.name, u.name, u.name)
+		}
+	}
+	return w, nil
+}
+
+// despikeBase looks for spikes in the base log, in time order, and leaves
+// them out (calibrate.DespikeBaseColumns), so that the base correction
+// interpolates across them: a base spike was subtracted from every survey
+// reading taken at its time, and --despike did not look at the base. The
+// threshold is spikeSigmas robust standard deviations, the one of the
+// survey's spike warning, or --despike's when it is given. It returns the
+// warning naming the times left out.
+func despikeBase(o *locateOptions, base *ingest.Samples) (string, error) {
+	k := spikeSigmas
+	if o.despike {
+		k = 5 // calibrate.Despike's default, which --despike uses
+	}
+	sp, err := calibrate.DespikeBaseColumns(base.Time, [3][]float64{base.Bx, base.By, base.Bz}, &calibrate.DespikeSettings{Threshold: float64(k)})
+	if err != nil || sp == nil {
+		return "", err
+	}
+	return fmt.Sprintf("%s: %s of the base log depart from the running median of their neighbours by more than %d robust standard deviations, at %s: spikes at the base station, which would be subtracted from every survey reading taken then; they were left out and the base interpolated across them",
+		o.base, plural(len(sp.Rows), "reading"), k, sp.Runs), nil
+}
+
+// nedToENUCalibration returns c turned from a sensor whose x, y, z axes
+// are the north, east, down of the log to the east, north, up that ingest
+// turns such a log to: with P the turn (x and y swapped, z negated, its
+// own inverse), the offset P o and the matrix P M P. Applied to the turned
+// readings P r, it gives P M (r - o), the calibration applied in the
+// sensor's own axes and then turned.
+func nedToENUCalibration(c *calibrate.Calibration) *calibrate.Calibration {
+	t := *c
+	perm, sign := [3]int{1, 0, 2}, [3]float64{1, 1, -1}
+	for i := range 3 {
+		t.Offset[i] = sign[i] * c.Offset[perm[i]]
+		for j := range 3 {
+			t.Matrix[i][j] = sign[i] * sign[j] * c.Matrix[perm[i]][perm[j]]
+		}
+	}
+	if c.OffsetSigma != nil {
+		var sg [3]float64
+		for i := range 3 {
+			sg[i] = c.OffsetSigma[perm[i]]
+		}
+		t.OffsetSigma = &sg
+	}
+	return &t
 }
 
 // addReadings demodulates s when asked and adds its readings to their

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"encoding/json"
 	"fmt"
 	"os"
 	"path/filepath"
@@ -87,4 +88,87 @@ func writeSamplesLog(path string, s *ingest.Samples) error {
 	}
 	defer r.Release()
 	return writeLog(path, r)
+}
+
+// sameFile reports whether paths a and b name the same file: for two
+// existing files os.SameFile, which sees through links and different
+// spellings of one path; otherwise the same absolute, cleaned path.
+func sameFile(a, b string) bool {
+	if a == "" || b == "" {
+		return false
+	}
+	fa, errA := os.Stat(a)
+	fb, errB := os.Stat(b)
+	if errA == nil && errB == nil {
+		return os.SameFile(fa, fb)
+	}
+	if errA == nil || errB == nil {
+		return false // one exists and the other does not
+	}
+	pa, errA := filepath.Abs(a)
+	pb, errB := filepath.Abs(b)
+	return errA == nil && errB == nil && pa == pb
+}
+
+// checkOutputs refuses, before any work, an output file that is one of the
+// inputs or another output: outs and ins are pairs of a flag (or argument)
+// name and a path, an empty path meaning none. Writing an output over an
+// input destroyed it (calibrate -o over its own spin log, which no run can
+// make again), and outputs written to one path kept only the last.
+func checkOutputs(outs, ins [][2]string) error {
+	for i, o := range outs {
+		if o[1] == "" {
+			continue
+		}
+		for _, in := range ins {
+			if sameFile(o[1], in[1]) {
+				return usageErrorf("%s %s is the input %s %s itself: writing there would destroy it; choose another name", o[0], o[1], in[0], in[1])
+			}
+		}
+		for _, p := range outs[:i] {
+			if sameFile(o[1], p[1]) {
+				return usageErrorf("%s %s and %s %s are the same file: each output needs its own name", p[0], p[1], o[0], o[1])
+			}
+		}
+	}
+	return nil
+}
+
+// checkCalibrationOut checks calibrate's -o before any work: not a
+// directory, not one of the input logs (ins: flag and path pairs, as for
+// checkOutputs), and, when the file exists, an earlier calibration file
+// (a JSON object with "version" and "method"), or empty: calibrate
+// replaces nothing else, so that a mistyped -o cannot replace a survey log
+// with a calibration.
+func checkCalibrationOut(out string, ins ...[2]string) error {
+	if out == "" {
+		return nil
+	}
+	if err := checkOutputs([][2]string{{"-o", out}}, ins); err != nil {
+		return err
+	}
+	fi, err := os.Stat(out)
+	if err != nil {
+		return nil // a new file (checkOutFile has checked its directory)
+	}
+	if fi.IsDir() {
+		return usageErrorf("-o %s is a directory: give the calibration file's name", out)
+	}
+	if fi.Size() == 0 {
+		return nil
+	}
+	why := "not a calibration file"
+	if fi.Size() <= 1<<20 {
+		var probe map[string]json.RawMessage
+		data, err := os.ReadFile(out)
+		if err != nil {
+			return usageErrorf("-o %s: %v", out, err)
+		}
+		if json.Unmarshal(data, &probe) == nil && probe["version"] != nil && probe["method"] != nil {
+			return nil
+		}
+	} else {
+		why = fmt.Sprintf("%d bytes, far more than a calibration file", fi.Size())
+	}
+	return usageErrorf("-o %s: the file exists and is %s: calibrate replaces only an earlier calibration file; choose another name, or remove the file first", out, why)
 }

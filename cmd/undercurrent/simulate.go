@@ -70,6 +70,9 @@ Examples:
 					return err
 				}
 			}
+			if err := checkOutputs([][2]string{{"-o", out}, {"--base-log", baseOut}, {"--truth", truthOut}}, [][2]string{{"SCENARIO", args[0]}}); err != nil {
+				return err
+			}
 			sc, err := simulate.Load(args[0])
 			if err != nil {
 				return err
