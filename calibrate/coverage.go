@@ -68,9 +68,21 @@ var capNames = [6]string{"+x", "-x", "+y", "-y", "+z", "-z"}
 // does not cover enough orientations.
 var ErrCoverage = errors.New("spin log does not cover enough orientations")
 
+// ErrDeadAxis is wrapped by the error CheckCoverage returns when one axis
+// of the sensor does not respond.
+var ErrDeadAxis = errors.New("an axis of the sensor does not respond")
+
 // CheckCoverage measures the coverage of readings (sensor frame, nT) and
 // returns an error wrapping ErrCoverage that says what is missing when it
 // falls short of set. The Coverage is returned in both cases.
+//
+// First it looks for a dead or stuck axis: one whose readings span less
+// than 2% of the widest axis's span while the other two do not keep the
+// steady distance from their centre that a turn about that axis would
+// give (at least 5% of the readings lie within half the largest distance
+// of the centre: the field pointed near the dead axis). That error wraps
+// ErrDeadAxis instead, since no turning helps a channel that does not
+// respond.
 func CheckCoverage(readings [][3]float64, set *CoverageSettings) (*Coverage, error) {
 	cs := set.withDefaults()
 	cov := &Coverage{N: len(readings)}
@@ -89,6 +101,9 @@ func CheckCoverage(readings [][3]float64, set *CoverageSettings) (*Coverage, err
 	}
 	for k := 0; k < 3; k++ {
 		cov.Centre[k] = 0.5 * (lo[k] + hi[k])
+	}
+	if err := deadAxis(readings, lo, hi, cov.Centre); err != nil {
+		return cov, err
 	}
 	cosCap := math.Cos(cs.CapAngle * math.Pi / 180)
 	var scat [3][3]float64
@@ -167,4 +182,52 @@ func CheckCoverage(readings [][3]float64, set *CoverageSettings) (*Coverage, err
 		return cov, fmt.Errorf("calibrate: %w: %s", ErrCoverage, strings.Join(problems, "; "))
 	}
 	return cov, nil
+}
+
+// deadAxis returns an error wrapping ErrDeadAxis when one axis hardly
+// changes while the other two swing over the field and do not trace the
+// circle of a turn about it (see CheckCoverage).
+func deadAxis(readings [][3]float64, lo, hi, centre [3]float64) error {
+	var span [3]float64
+	widest := 0.0
+	for k := 0; k < 3; k++ {
+		span[k] = hi[k] - lo[k]
+		widest = math.Max(widest, span[k])
+	}
+	if !(widest > 0) {
+		return nil
+	}
+	for k := 0; k < 3; k++ {
+		if span[k] >= 0.02*widest {
+			continue
+		}
+		a, b := (k+1)%3, (k+2)%3
+		if a > b {
+			a, b = b, a
+		}
+		rho := make([]float64, len(readings))
+		rmax := 0.0
+		for i, r := range readings {
+			rho[i] = math.Hypot(r[a]-centre[a], r[b]-centre[b])
+			rmax = math.Max(rmax, rho[i])
+		}
+		inner := 0
+		for _, v := range rho {
+			if v < 0.5*rmax {
+				inner++
+			}
+		}
+		if float64(inner) < 0.05*float64(len(readings)) {
+			// A turn about k: the direction checks say so.
+			continue
+		}
+		name := func(j int) string { return "b" + string("xyz"[j]) }
+		what := fmt.Sprintf("stays within %.3g nT of %.6g nT", span[k], centre[k])
+		if span[k] == 0 {
+			what = fmt.Sprintf("reads %.6g nT throughout", lo[k])
+		}
+		return fmt.Errorf("calibrate: %w: %s does not change (it %s while %s and %s swing over %.0f and %.0f nT), yet %s and %s do not keep the steady magnitude a turn about %c would give (%.0f%% of the readings lie within half the largest distance of their centre): the %c channel appears dead or stuck; check the sensor, its wiring and the column given for %s",
+			ErrDeadAxis, name(k), what, name(a), name(b), span[a], span[b], name(a), name(b), "xyz"[k], 100*float64(inner)/float64(len(readings)), "xyz"[k], name(k))
+	}
+	return nil
 }

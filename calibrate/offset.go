@@ -17,6 +17,8 @@ type OffsetResult struct {
 	Determined [3]bool
 	// N is the number of readings used (for the flip method, per position).
 	N [2]int
+	// Warnings say what the caller should show.
+	Warnings []string
 }
 
 // Tolerances of the flip method's sanity checks, as fractions of the field
@@ -124,8 +126,25 @@ func checkFlip(m0, m1, s0, s1 [3]float64, axis int, res *OffsetResult) error {
 	return nil
 }
 
+// Limits of the zero-field method's check on the mean reading's magnitude,
+// nT. A shield leaves a residual field of a few nT to some tens of nT, and
+// a sensor's own offset is typically below a few hundred nT, while the
+// Earth's main field is about 22 000 nT (South Atlantic) to 67 000 nT (near
+// the south magnetic pole) at the surface (IGRF).
+const (
+	// ZeroWarnField is the magnitude above which the zero offset gets a
+	// warning: large for a sensor offset plus what a shield lets through.
+	ZeroWarnField = 1000.0
+	// ZeroMaxField is the magnitude above which a zero-field log is
+	// refused: half the weakest Earth field, so a log taken outside the
+	// shield, or in one left open, cannot pass as a sensor offset.
+	ZeroMaxField = 11000.0
+)
+
 // ZeroOffset estimates all three offsets as the mean of readings taken in
-// zero field (inside a magnetic shield).
+// zero field (inside a magnetic shield). A mean reading of magnitude above
+// ZeroMaxField is refused, and one above ZeroWarnField gets a warning: the
+// log was probably not taken in zero field.
 func ZeroOffset(r [][3]float64) (*OffsetResult, error) {
 	m, s, err := meanStd(r, "zero-field")
 	if err != nil {
@@ -134,6 +153,15 @@ func ZeroOffset(r [][3]float64) (*OffsetResult, error) {
 	res := &OffsetResult{Offset: m, Determined: [3]bool{true, true, true}, N: [2]int{len(r), 0}}
 	for k := 0; k < 3; k++ {
 		res.Sigma[k] = s[k] / math.Sqrt(float64(len(r)))
+	}
+	f := norm3(m)
+	switch {
+	case f > ZeroMaxField:
+		return nil, fmt.Errorf("calibrate: zero: the log reads a field of %.0f nT (mean %.0f, %.0f, %.0f nT), as outside a shield: a zero-field log is taken with the sensor inside a closed magnetic shield, where it reads only its offset (at most a few hundred nT); at more than %.0f nT this is not an offset (the Earth's field is 22 000 to 67 000 nT)",
+			f, m[0], m[1], m[2], ZeroMaxField)
+	case f > ZeroWarnField:
+		res.Warnings = append(res.Warnings, fmt.Sprintf("the zero-field log reads %.0f nT (mean %.0f, %.0f, %.0f nT), large for a sensor offset (typically a few hundred nT at most) plus what a closed shield lets through: was the shield closed, and the sensor far from steel inside it?",
+			f, m[0], m[1], m[2]))
 	}
 	return res, nil
 }

@@ -153,9 +153,12 @@ Examples:
 			// the calibration file so that locate can tell a log of another
 			// sensor (Calibration.Check).
 			var sensor string
+			var times []float64 // of the last log read
 			read := func(role, path string) ([][3]float64, calibrate.Input, error) {
 				// A zero-field log is near zero by design: no unit check.
-				return readCalibrationLog(ctx, &rf, opts, role, path, role != "zero", &sensor, stderr)
+				r, in, t, err := readCalibrationLog(ctx, &rf, opts, role, path, role != "zero", &sensor, stderr)
+				times = t
+				return r, in, err
 			}
 			if show != "" {
 				cal, err := calibrate.Load(show)
@@ -176,6 +179,7 @@ Examples:
 					return inFile(spin, err)
 				}
 				cal = calibrate.FromEllipsoid(res, in)
+				spinNotes(cal, res, times, reference, stderr, spin)
 			case zero != "":
 				r, in, err := read("zero", zero)
 				if err != nil {
@@ -186,6 +190,10 @@ Examples:
 					return inFile(zero, err)
 				}
 				cal = calibrate.FromOffset(calibrate.MethodZero, res, in)
+				for _, w := range res.Warnings {
+					fmt.Fprintf(stderr, "warning: %s: %s\n", zero, w)
+					cal.Notes = append(cal.Notes, w)
+				}
 			default:
 				axis := strings.Index("xyz", strings.ToLower(flipAxis))
 				if len(flipAxis) != 1 || axis < 0 {
@@ -239,14 +247,14 @@ func inFile(path string, err error) error {
 // the input flags' options, prints the warnings about it (missing rows
 // dropped, a field unit that looks wrong when checkUnits) and records the
 // file with its checksum.
-func readCalibrationLog(ctx context.Context, rf *readFlags, opts []ingest.Option, role, path string, checkUnits bool, sensor *string, stderr io.Writer) ([][3]float64, calibrate.Input, error) {
+func readCalibrationLog(ctx context.Context, rf *readFlags, opts []ingest.Option, role, path string, checkUnits bool, sensor *string, stderr io.Writer) ([][3]float64, calibrate.Input, []float64, error) {
 	s, warns, err := rf.readLog(ctx, path, opts, checkUnits)
 	if err != nil {
-		return nil, calibrate.Input{}, err
+		return nil, calibrate.Input{}, nil, err
 	}
 	if name := calibrate.SensorName(s); name != "" {
 		if *sensor != "" && *sensor != name {
-			return nil, calibrate.Input{}, fmt.Errorf("%s names sensor %q, but the other log names %q: a calibration is for one sensor", path, name, *sensor)
+			return nil, calibrate.Input{}, nil, fmt.Errorf("%s names sensor %q, but the other log names %q: a calibration is for one sensor", path, name, *sensor)
 		}
 		*sensor = name
 	}
@@ -255,10 +263,71 @@ func readCalibrationLog(ctx context.Context, rf *readFlags, opts []ingest.Option
 	}
 	r, err := calibrate.Readings(s)
 	if err != nil {
-		return nil, calibrate.Input{}, err
+		return nil, calibrate.Input{}, nil, err
 	}
 	in, err := calibrate.FileInput(role, path, len(r))
-	return r, in, err
+	return r, in, s.Time, err
+}
+
+// noReferenceNote begins the note of a spin calibration made without
+// --reference, whose scale is the sensor's own; printCalibration then
+// labels the field magnitude "radius", not "reference".
+const noReferenceNote = "no --reference:"
+
+// spinNotes records in cal what the ellipsoid fit left out (with the
+// times of those readings, also shown as a warning), the standard errors
+// of the fit, and, without --reference, that the scale is the sensor's own.
+func spinNotes(cal *calibrate.Calibration, res *calibrate.EllipsoidResult, times []float64, reference float64, stderr io.Writer, path string) {
+	at := func(idx []int) string {
+		var parts []string
+		for i, j := range idx {
+			if i == 5 {
+				parts = append(parts, fmt.Sprintf("and %d more", len(idx)-5))
+				break
+			}
+			if j < len(times) {
+				parts = append(parts, calibrationTime(times[j]))
+			}
+		}
+		return strings.Join(parts, ", ")
+	}
+	// The fit's warnings are about the clipped readings, when there are
+	// any, then about the outliers: each gets the times of its readings.
+	warns := res.Warnings
+	for _, idx := range [][]int{res.Clipped, res.Outliers} {
+		if len(idx) == 0 || len(warns) == 0 {
+			continue
+		}
+		msg := fmt.Sprintf("%s (at %s)", warns[0], at(idx))
+		warns = warns[1:]
+		fmt.Fprintf(stderr, "warning: %s: %s\n", path, msg)
+		cal.Notes = append(cal.Notes, msg)
+	}
+	for _, w := range warns {
+		fmt.Fprintf(stderr, "warning: %s: %s\n", path, w)
+		cal.Notes = append(cal.Notes, w)
+	}
+	sigma := res.OffsetSigma
+	cal.OffsetSigma = &sigma
+	worst := 0.0
+	for _, row := range res.MatrixSigma {
+		for _, v := range row {
+			worst = math.Max(worst, v)
+		}
+	}
+	cal.Notes = append(cal.Notes, fmt.Sprintf("standard errors from the scatter of |B| after the fit: offset ± %.2g, %.2g, %.2g nT; matrix entries ± %.2g at most", sigma[0], sigma[1], sigma[2], worst))
+	if reference == 0 {
+		cal.Notes = append(cal.Notes, fmt.Sprintf("%s the matrix maps the readings to the fitted ellipsoid's own size, %.1f nT, so the absolute scale is the sensor's own (a sensor reading 3%% high still reads 3%% high); give the site's field magnitude with --reference to fix it", noReferenceNote, res.Radius))
+	}
+}
+
+// calibrationTime shows a reading's time: Unix times as UTC, small
+// (relative) ones as seconds.
+func calibrationTime(t float64) string {
+	if t > 1e8 && t < 1e11 {
+		return utcTime(t)
+	}
+	return fmt.Sprintf("t = %g s", t)
 }
 
 func printCalibration(w io.Writer, cal *calibrate.Calibration, asJSON bool) error {
@@ -276,8 +345,17 @@ func printCalibration(w io.Writer, cal *calibrate.Calibration, asJSON bool) erro
 	}
 	fmt.Fprintf(w, "offset      %10.2f %10.2f %10.2f nT", cal.Offset[0], cal.Offset[1], cal.Offset[2])
 	if cal.OffsetSigma != nil {
-		s := cal.OffsetSigma
-		fmt.Fprintf(w, "  (± %.2f, %.2f, %.2f)", s[0], s[1], s[2])
+		// A flip leaves the offset along its axis undetermined: it is
+		// stored as 0 ± 0, which is no standard error.
+		var parts []string
+		for k, s := range cal.OffsetSigma {
+			if cal.Method == calibrate.MethodFlip && s == 0 && cal.Offset[k] == 0 {
+				parts = append(parts, fmt.Sprintf("%c not determined, left at 0", "xyz"[k]))
+				continue
+			}
+			parts = append(parts, fmt.Sprintf("%.2f", s))
+		}
+		fmt.Fprintf(w, "  (± %s)", strings.Join(parts, ", "))
 	}
 	fmt.Fprintln(w)
 	for i, row := range cal.Matrix {
@@ -288,7 +366,13 @@ func printCalibration(w io.Writer, cal *calibrate.Calibration, asJSON bool) erro
 		fmt.Fprintf(w, "%-11s %10.6f %10.6f %10.6f\n", label, row[0], row[1], row[2])
 	}
 	if cal.Reference != 0 {
-		fmt.Fprintf(w, "reference   %.1f nT\n", cal.Reference)
+		label, what := "reference", ""
+		for _, n := range cal.Notes {
+			if strings.HasPrefix(n, noReferenceNote) {
+				label, what = "radius", " (the fitted ellipsoid's own size: no --reference, so the scale is the sensor's own)"
+			}
+		}
+		fmt.Fprintf(w, "%-11s %.1f nT%s\n", label, cal.Reference, what)
 	}
 	if cal.Before != nil && cal.After != nil {
 		b, a := cal.Before, cal.After
