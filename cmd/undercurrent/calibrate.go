@@ -140,6 +140,13 @@ Examples:
 			if err := checkCalibrationOut(out, [2]string{"--spin", spin}, [2]string{"--flip0", flip0}, [2]string{"--flip180", flip180}, [2]string{"--zero", zero}, [2]string{"--show", show}); err != nil {
 				return err
 			}
+			// A calibration belongs to the sensor's own axes, the columns as
+			// the file has them; locate applies it there, before it turns a
+			// log read with --frame ned to east, north, up. Made from a spin
+			// log turned by --frame ned it would be turned twice.
+			if fs.Changed("frame") && strings.EqualFold(strings.TrimSpace(rf.frame), "ned") {
+				return usageErrorf("--frame ned: a calibration is made in the sensor's own axes, the bx, by, bz columns as the file has them, and locate --frame ned applies it in those axes before turning them; leave --frame out here")
+			}
 			opts, err := rf.options(fs)
 			if err != nil {
 				return err
