@@ -257,7 +257,8 @@ func singleAnglesUndetermined(r *Result) (bool, string) {
 // seedsFromData proposes single-line seeds from the anomaly in data rows d.
 func (f *fitter) seedsFromData(d []float64) []seed {
 	var a [][3]float64
-	if &d[0] == &f.sv.y[0] {
+	own := &d[0] == &f.sv.y[0]
+	if own {
 		a = f.sv.anomaly()
 	} else {
 		a = anomaly(d, len(f.sv.pts), f.sv.nrhs, f.scr)
@@ -267,7 +268,7 @@ func (f *fitter) seedsFromData(d []float64) []seed {
 	if !holdAz {
 		azs = f.sv.azimuthCandidates(a)
 	}
-	out := make([]seed, 0, 3*len(azs))
+	out := make([]seed, 0, 3*len(azs)+1)
 	for i, az := range azs {
 		sd := f.sv.seedFor(a, az)
 		depth := f.sv.zmean - sd.z
@@ -281,6 +282,15 @@ func (f *fitter) seedsFromData(d []float64) []seed {
 			s2 := sd
 			s2.z = f.sv.zmean - m*depth
 			out = append(out, s2)
+		}
+	}
+	// For DC readings, a seed at the first azimuth that solves for the background
+	// instead of taking the median out (see poleSeed): on a traverse only a few depths
+	// long the half-width seeds put a deep line too shallow or at the traverse's end.
+	// Only from the readings themselves, the first line's seeds.
+	if own && f.sv.nrhs == 1 {
+		if sd, ok := f.sv.poleSeed(a, azs[0]); ok {
+			out = append(out, sd)
 		}
 	}
 	return out
