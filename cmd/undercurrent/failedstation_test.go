@@ -8,9 +8,10 @@ import (
 	"testing"
 )
 
-// weakPipe is a 1 A DC pipe 1.5 m down, under eleven 8 m traverses with
-// 20 nT readings (an invented site): one traverse of this seed finds no
-// significant current, its line fitted 13 m aside.
+// weakPipe is a 0.25 A DC pipe 1.5 m down, under eleven 8 m traverses with
+// 20 nT readings (an invented site): about 4 sigmas of current per
+// traverse, so that two traverses of this seed (T01, T10) find no
+// significant current and their lines are fitted where they mean nothing.
 const weakPipe = `name = "weak-pipe"
 site = "Wetherby Carr (invented)"
 seed = 1
@@ -34,7 +35,7 @@ name = "line"
 kind = "line"
 point = [0.0, 0.4, -1.5]
 direction = [1.0, 0.0, 0.0]
-current_a = 1
+current_a = 0.25
 `
 
 // TestLocateFailedStationKeepsOut: a traverse whose fit found no current
@@ -42,8 +43,8 @@ current_a = 1
 // point started the route's chain: the traverse 20 m along took chainage
 // 0, the next station's current was turned to -0.86 A, and a "current
 // rises by 1.880 A" was reported on a constant 1 A pipe. The chainages
-// must follow the traverses, every sound current must be the pipe's 1 A
-// (within four sigmas) and no step reported.
+// must follow the traverses, every sound current must be the pipe's
+// 0.25 A (within four sigmas) and no step reported.
 func TestLocateFailedStationKeepsOut(t *testing.T) {
 	dir := t.TempDir()
 	scen := filepath.Join(dir, "weak.toml")
@@ -60,8 +61,8 @@ func TestLocateFailedStationKeepsOut(t *testing.T) {
 			continue
 		}
 		s := g.Sources[0]
-		if math.Abs(s.Current-1) > kSigma*s.CurrentSigma {
-			t.Errorf("%s: %.4g ± %.2g A, want the pipe's 1 A", g.Key, s.Current, s.CurrentSigma)
+		if math.Abs(s.Current-0.25) > kSigma*s.CurrentSigma {
+			t.Errorf("%s: %.4g ± %.2g A, want the pipe's 0.25 A", g.Key, s.Current, s.CurrentSigma)
 		}
 	}
 	if failed == 0 {
