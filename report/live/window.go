@@ -45,20 +45,32 @@ type openWindow struct {
 // A sample at time t belongs to window k = floor(t/L + eps) (eps absorbs
 // rounding of times on a boundary). Window k closes when every sensor's
 // next expected sample (last time + its sample interval) falls in a later
-// window, when the furthest sensor is Grace past the window's end, or when
-// no data has arrived for Idle of wall time. Until a message stored after
-// backlog arrives, Idle is at least resumeIdle: data that was already in
-// the broker when the worker took the asset says nothing about whether its
-// publisher is still sending.
+// window, when the quorum time (see quorum) is Grace past the window's
+// end, or when no data has arrived for Idle of wall time. Until a message
+// stored after backlog arrives, Idle is at least resumeIdle: data that was
+// already in the broker when the worker took the asset says nothing about
+// whether its publisher is still sending.
+//
+// The quorum time is the latest time that a strict majority of the
+// sensors heard from lately (within stale of wall time) have reached, not
+// the furthest sensor's: one sensor whose clock jumps ahead cannot close
+// the other sensors' windows. A batch that starts more than Grace plus a
+// window ahead of every other sensor heard from lately (at least two,
+// each taken as far as the wall time since it was heard from carries it)
+// is refused (ahead) and leaves its sensor's state as it was.
 type assembler struct {
 	L, grace float64
 	n        int
-	water    []float64 // last sample time per sensor
-	dt       []float64 // sample interval per sensor (0 = unknown)
-	open     []*openWindow
-	done     float64 // end of the last closed window; earlier samples are late
-	lastSeq  uint64
-	arrival  time.Time
+	water    []float64   // last sample time per sensor
+	dt       []float64   // sample interval per sensor (0 = unknown)
+	seen     []time.Time // wall time of each sensor's last accepted batch
+	// stale is how long (wall time) a sensor that sent nothing still counts
+	// in the quorum; 0 counts every sensor ever heard from.
+	stale   time.Duration
+	open    []*openWindow
+	done    float64 // end of the last closed window; earlier samples are late
+	lastSeq uint64
+	arrival time.Time
 	// backlog is the last stream sequence stored before the worker began
 	// reading; fresh says a later message has arrived since.
 	backlog    uint64
@@ -75,6 +87,7 @@ func newAssembler(window, grace time.Duration, sensors int) *assembler {
 	}
 	a.water = make([]float64, sensors)
 	a.dt = make([]float64, sensors)
+	a.seen = make([]time.Time, sensors)
 	for i := range a.water {
 		a.water[i] = math.Inf(-1)
 	}
@@ -91,6 +104,7 @@ const (
 	outOfOrder           // first sample not after the sensor's last one
 	late                 // every sample falls in a closed window
 	outOfRange           // a time too large for a window index
+	ahead                // far ahead of the other sensors (see assembler)
 )
 
 // maxWindowIndex bounds |t/L|: window indices and the times computed
@@ -115,6 +129,10 @@ func (a *assembler) add(s int, seq uint64, b *broker.Batch, now time.Time) (res 
 	if b.Time[0] <= a.water[s] {
 		return outOfOrder, 0
 	}
+	if q, k := a.others(now, s); k >= 2 && b.Time[0] > q+a.grace+a.L {
+		return ahead, 0
+	}
+	a.seen[s] = now
 	if n > 1 {
 		a.dt[s] = (b.Time[n-1] - b.Time[0]) / float64(n-1)
 	} else if !math.IsInf(a.water[s], -1) && a.dt[s] == 0 {
@@ -163,10 +181,7 @@ func (a *assembler) window(k int64, seq uint64) *openWindow {
 // idle > 0 closes everything open once no data arrived for that long.
 func (a *assembler) ready(now time.Time, idle time.Duration) []*window {
 	var out []*window
-	maxWater := math.Inf(-1)
-	for _, w := range a.water {
-		maxWater = math.Max(maxWater, w)
-	}
+	qWater := a.quorum(now)
 	if idle > 0 && !a.fresh && a.resumeIdle > idle {
 		idle = a.resumeIdle
 	}
@@ -178,7 +193,7 @@ func (a *assembler) ready(now time.Time, idle time.Duration) []*window {
 		switch {
 		case a.complete(w.idx):
 			reason = "complete"
-		case maxWater >= end+a.grace:
+		case qWater >= end+a.grace:
 			reason = "grace"
 		case idleNow:
 			reason = "idle"
@@ -191,6 +206,46 @@ func (a *assembler) ready(now time.Time, idle time.Duration) []*window {
 		out = append(out, &window{Index: w.idx, Start: float64(w.idx) * a.L, End: end, Sensors: w.sensors, Closed: now, Reason: reason, minSeq: w.minSeq, Expected: a.expected()})
 	}
 	return out
+}
+
+// heard reports whether sensor s has sent a batch within stale of now.
+func (a *assembler) heard(s int, now time.Time) bool {
+	return !math.IsInf(a.water[s], -1) && (a.stale <= 0 || now.Sub(a.seen[s]) < a.stale)
+}
+
+// others returns the latest time any sensor other than s heard from
+// lately can have reached by now (its last sample time plus the wall time
+// since it was heard from), and how many such sensors there are.
+func (a *assembler) others(now time.Time, s int) (float64, int) {
+	lead, k := math.Inf(-1), 0
+	for o, w := range a.water {
+		if o == s || !a.heard(o, now) {
+			continue
+		}
+		k++
+		lead = math.Max(lead, w+math.Max(0, now.Sub(a.seen[o]).Seconds()))
+	}
+	return lead, k
+}
+
+// quorum returns the quorum time of the sensors heard from within stale
+// of now: the time that a strict majority of them have reached (with five
+// sensors the third latest, the median; with two the earlier). It is -Inf
+// when none was heard from.
+func (a *assembler) quorum(now time.Time) float64 {
+	var buf [16]float64
+	ws := buf[:0]
+	for s, w := range a.water {
+		if a.heard(s, now) {
+			ws = append(ws, w)
+		}
+	}
+	if len(ws) == 0 {
+		return math.Inf(-1)
+	}
+	sort.Float64s(ws)
+	// A strict majority of k sensors is k/2+1 of them: the (k/2+1)-th latest.
+	return ws[len(ws)-1-len(ws)/2]
 }
 
 // expected returns the samples per window of each sensor at its current

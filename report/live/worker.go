@@ -62,8 +62,16 @@ func (s *Service) newAssetWorker(a *AssetConfig) (*assetWorker, error) {
 	for i, sn := range a.Sensors {
 		w.sens[sn.Name] = i
 	}
-	w.asm = newAssembler(a.Window.Duration, s.site.Service.Grace.Duration, len(a.Sensors))
+	w.asm = s.newAssetAssembler(a)
 	return w, nil
+}
+
+// newAssetAssembler returns the assembler of asset a: a sensor silent for
+// the idle time no longer counts in the quorum that closes windows.
+func (s *Service) newAssetAssembler(a *AssetConfig) *assembler {
+	asm := newAssembler(a.Window.Duration, s.site.Service.Grace.Duration, len(a.Sensors))
+	asm.stale = s.site.Service.Idle.Duration
+	return asm
 }
 
 // run reads the asset's data from its checkpoint until ctx ends, then
@@ -325,6 +333,11 @@ func (w *assetWorker) handle(m jetstream.Msg) error {
 	case outOfRange:
 		return w.deadLetter(broker.ReasonMalformed, subj, seq, data,
 			fmt.Errorf("live: %s: times %v to %v give window indices beyond %v", subj, b.Time[0], b.Time[b.Len()-1], float64(maxWindowIndex)))
+	case ahead:
+		q, k := w.asm.others(t0, si)
+		return w.deadLetter(broker.ReasonMalformed, subj, seq, data,
+			fmt.Errorf("live: %s: batch starts at %v (%s), %.6g s ahead of all %d other sensors of the asset sending now (more than grace plus a window): the sensor's clock is wrong",
+				subj, b.Time[0], unixString(b.Time[0]), b.Time[0]-q, k))
 	case outOfOrder:
 		return w.deadLetter(broker.ReasonOutOfOrder, subj, seq, data,
 			fmt.Errorf("live: %s: batch starts at %v, not after the sensor's last sample", subj, b.Time[0]))

@@ -1,0 +1,106 @@
+package live
+
+import (
+	"testing"
+	"time"
+)
+
+// One sensor's batch stamped ten minutes ahead (well within max_ahead)
+// is refused as ahead of the other sensors; it does not close their
+// windows, they lose no sample, and the glitching sensor's next correct
+// batch is accepted. Five sensors at 100 Hz, 0.1 s batches, 1 s windows,
+// 2 s grace (the harrow-fen site's settings).
+func TestOneSensorAheadIsolated(t *testing.T) {
+	const t0 = 1796104800.0
+	a := newAssembler(time.Second, 2*time.Second, 5)
+	a.stale = 5 * time.Second
+	now := time.Unix(1796104800, 0)
+	var closed []*window
+	seq := uint64(0)
+	for b := 0; b < 50; b++ { // 5 s of data
+		now = now.Add(100 * time.Millisecond)
+		for s := 0; s < 5; s++ {
+			seq++
+			start := t0 + 0.1*float64(b)
+			if s == 4 && b == 20 {
+				res, _ := a.add(s, seq, mkBatch(start+600, 100, 10, 0), now)
+				if res != ahead {
+					t.Fatalf("batch 600 s ahead of four sensors: %v, want ahead", res)
+				}
+				continue
+			}
+			if res, dropped := a.add(s, seq, mkBatch(start, 100, 10, 0), now); res != added || dropped != 0 {
+				t.Fatalf("batch %d sensor %d: %v, %d dropped", b, s, res, dropped)
+			}
+			closed = append(closed, a.ready(now, 0)...)
+		}
+	}
+	if len(closed) != 5 {
+		t.Fatalf("%d windows closed, want 5", len(closed))
+	}
+	for i, w := range closed {
+		if w.Start != t0+float64(i) {
+			t.Errorf("window %d starts at %v", i, w.Start)
+		}
+		for s := 0; s < 5; s++ {
+			want := 100
+			if s == 4 && i == 2 {
+				want = 90 // the refused batch
+			}
+			if n := w.Sensors[s].len(); n != want {
+				t.Errorf("window %d sensor %d: %d samples, want %d", i, s, n, want)
+			}
+		}
+	}
+}
+
+// While sensors fall silent, the ones still sending close the windows:
+// with two of five silent, the three left are a majority of the five;
+// with three silent, the two left close windows once the silent ones have
+// sent nothing for the stale time (the site's idle time) of wall time.
+func TestQuorumWithSilentSensors(t *testing.T) {
+	const t0 = 1796104800.0
+	for _, tc := range []struct {
+		name   string
+		live   []int
+		before int // last batch before which no window after the first may close
+	}{
+		{"two of five silent", []int{0, 1, 2}, 0},
+		{"three of five silent", []int{0, 1}, 55},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			a := newAssembler(time.Second, 2*time.Second, 5)
+			a.stale = 5 * time.Second
+			now := time.Unix(1796104800, 0)
+			var closed []*window
+			for b := 0; b < 100; b++ { // 10 s of data, 0.1 s of wall time per batch
+				now = now.Add(100 * time.Millisecond)
+				sensors := tc.live
+				if b < 10 {
+					sensors = []int{0, 1, 2, 3, 4}
+				}
+				for _, s := range sensors {
+					a.add(s, uint64(b*5+s+1), mkBatch(t0+0.1*float64(b), 100, 10, 0), now)
+				}
+				got := a.ready(now, 0)
+				if b < tc.before {
+					for _, w := range got {
+						if w.Index > int64(t0) {
+							t.Fatalf("batch %d: window at %v s closed while three of five sensors had been quiet for less than the stale time", b, w.Start-t0)
+						}
+					}
+				}
+				closed = append(closed, got...)
+			}
+			// Data reach 9.99 s: windows ending by 7.99 s close on grace.
+			if len(closed) != 7 || closed[6].End != t0+7 {
+				t.Fatalf("%d windows closed, want 7 (to 7 s)", len(closed))
+			}
+			for _, w := range closed[1:] {
+				if w.Reason != "grace" {
+					t.Errorf("window at %v s closed on %s, want grace", w.Start-t0, w.Reason)
+				}
+			}
+		})
+	}
+}
