@@ -1,6 +1,7 @@
 package live
 
 import (
+	"fmt"
 	"math"
 	"sort"
 	"time"
@@ -57,13 +58,18 @@ type openWindow struct {
 // the other sensors' windows. A batch that starts more than Grace plus a
 // window ahead of every other sensor heard from lately (at least two,
 // each taken as far as the wall time since it was heard from carries it)
-// is refused (ahead) and leaves its sensor's state as it was.
+// is held back: it is filed when another sensor catches up with it (all
+// sensors resuming after a gap), and given up (takeRejected) when its
+// sensor sends in line with the others again (a clock jump), when it has
+// been held for stale, or when more than maxHeld pile up.
 type assembler struct {
 	L, grace float64
 	n        int
 	water    []float64   // last sample time per sensor
 	dt       []float64   // sample interval per sensor (0 = unknown)
-	seen     []time.Time // wall time of each sensor's last accepted batch
+	seen     []time.Time // wall time of each sensor's last batch in order
+	held     [][]heldBatch
+	rejected []heldBatch
 	// stale is how long (wall time) a sensor that sent nothing still counts
 	// in the quorum; 0 counts every sensor ever heard from.
 	stale   time.Duration
@@ -88,6 +94,7 @@ func newAssembler(window, grace time.Duration, sensors int) *assembler {
 	a.water = make([]float64, sensors)
 	a.dt = make([]float64, sensors)
 	a.seen = make([]time.Time, sensors)
+	a.held = make([][]heldBatch, sensors)
 	for i := range a.water {
 		a.water[i] = math.Inf(-1)
 	}
@@ -104,17 +111,37 @@ const (
 	outOfOrder           // first sample not after the sensor's last one
 	late                 // every sample falls in a closed window
 	outOfRange           // a time too large for a window index
-	ahead                // far ahead of the other sensors (see assembler)
+	heldBack             // far ahead of the other sensors: held (see assembler)
 )
 
 // maxWindowIndex bounds |t/L|: window indices and the times computed
 // from them stay exact integers in a float64, far from int64 overflow.
 const maxWindowIndex = 1 << 52
 
+// heldBatch is a batch held back because it starts far ahead of every
+// other sensor (see assembler).
+type heldBatch struct {
+	seq  uint64
+	b    *broker.Batch
+	at   time.Time // wall time it was held
+	subj string    // message subject and payload, for a dead letter
+	data []byte
+	why  string // why it was given up
+}
+
+// maxHeld bounds the batches held per sensor; older ones are given up.
+const maxHeld = 16
+
 // add files the samples of b (sensor index s, stream sequence seq).
 // Samples before the end of the last closed window are dropped; dropped
 // reports how many.
 func (a *assembler) add(s int, seq uint64, b *broker.Batch, now time.Time) (res addResult, dropped int) {
+	return a.addMsg(s, seq, b, now, "", nil)
+}
+
+// addMsg is add for a message with its subject and payload, which are
+// kept with the batch if it is held (see rejected).
+func (a *assembler) addMsg(s int, seq uint64, b *broker.Batch, now time.Time, subj string, data []byte) (res addResult, dropped int) {
 	if seq > a.lastSeq {
 		a.lastSeq = seq
 	}
@@ -130,8 +157,78 @@ func (a *assembler) add(s int, seq uint64, b *broker.Batch, now time.Time) (res 
 		return outOfOrder, 0
 	}
 	if q, k := a.others(now, s); k >= 2 && b.Time[0] > q+a.grace+a.L {
-		return ahead, 0
+		// Far ahead of every other sensor: either this sensor's clock
+		// jumped or all sensors resumed after a gap and this one came
+		// first. Held until the others catch up (released) or this sensor
+		// sends in line with them again (given up).
+		h := a.held[s]
+		if len(h) > 0 && b.Time[0] <= h[len(h)-1].b.Time[h[len(h)-1].b.Len()-1] {
+			a.reject(s, len(h), "a later batch of the sensor went back before it")
+			h = nil
+		}
+		h = append(h, heldBatch{seq: seq, b: b, at: now, subj: subj, data: data})
+		a.held[s] = h
+		if len(h) > maxHeld {
+			a.reject(s, len(h)-maxHeld, fmt.Sprintf("more than %d batches of the sensor were held", maxHeld))
+		}
+		a.seen[s] = now
+		return heldBack, 0
 	}
+	if h := a.held[s]; len(h) > 0 {
+		// Back in line with the other sensors: the held batches were a
+		// clock jump.
+		a.reject(s, len(h), fmt.Sprintf("the sensor's next batch, from %v, is in line with the other sensors: its clock jumped", b.Time[0]))
+	}
+	res, dropped = a.accept(s, seq, b, now)
+	a.release(now)
+	return res, dropped
+}
+
+// reject gives up the first k held batches of sensor s (see
+// takeRejected), saying why.
+func (a *assembler) reject(s, k int, why string) {
+	for i := range k {
+		a.held[s][i].why = why
+	}
+	a.rejected = append(a.rejected, a.held[s][:k]...)
+	a.held[s] = append([]heldBatch(nil), a.held[s][k:]...)
+}
+
+// takeRejected returns and forgets the held batches given up since the last
+// call, for the caller to refuse.
+func (a *assembler) takeRejected() []heldBatch {
+	r := a.rejected
+	a.rejected = nil
+	return r
+}
+
+// release files the held batches that are no longer ahead of the other
+// sensors, and gives up those held for longer than stale.
+func (a *assembler) release(now time.Time) {
+	for again := true; again; {
+		again = false
+		for s, h := range a.held {
+			if len(h) == 0 {
+				continue
+			}
+			if q, k := a.others(now, s); k >= 2 && h[0].b.Time[0] > q+a.grace+a.L {
+				if a.stale > 0 && now.Sub(h[0].at) >= a.stale {
+					a.reject(s, len(h), fmt.Sprintf("no other sensor caught up with it within %v", a.stale))
+				}
+				continue
+			}
+			a.held[s] = nil
+			for _, x := range h {
+				a.accept(s, x.seq, x.b, now)
+			}
+			again = true
+		}
+	}
+}
+
+// accept files a batch in order for sensor s.
+func (a *assembler) accept(s int, seq uint64, b *broker.Batch, now time.Time) (res addResult, dropped int) {
+	n := b.Len()
 	a.seen[s] = now
 	if n > 1 {
 		a.dt[s] = (b.Time[n-1] - b.Time[0]) / float64(n-1)
@@ -181,6 +278,7 @@ func (a *assembler) window(k int64, seq uint64) *openWindow {
 // idle > 0 closes everything open once no data arrived for that long.
 func (a *assembler) ready(now time.Time, idle time.Duration) []*window {
 	var out []*window
+	a.release(now)
 	qWater := a.quorum(now)
 	if idle > 0 && !a.fresh && a.resumeIdle > idle {
 		idle = a.resumeIdle
@@ -214,8 +312,9 @@ func (a *assembler) heard(s int, now time.Time) bool {
 }
 
 // others returns the latest time any sensor other than s heard from
-// lately can have reached by now (its last sample time plus the wall time
-// since it was heard from), and how many such sensors there are.
+// lately can have reached by now (its last sample time, held batches
+// included, plus the wall time since it was heard from), and how many
+// such sensors there are.
 func (a *assembler) others(now time.Time, s int) (float64, int) {
 	lead, k := math.Inf(-1), 0
 	for o, w := range a.water {
@@ -223,6 +322,10 @@ func (a *assembler) others(now time.Time, s int) (float64, int) {
 			continue
 		}
 		k++
+		if h := a.held[o]; len(h) > 0 {
+			last := h[len(h)-1].b
+			w = math.Max(w, last.Time[last.Len()-1])
+		}
 		lead = math.Max(lead, w+math.Max(0, now.Sub(a.seen[o]).Seconds()))
 	}
 	return lead, k
@@ -289,13 +392,13 @@ func (a *assembler) complete(k int64) bool {
 // rebuild the open windows: the oldest message feeding one, or the next
 // message when nothing is open.
 func (a *assembler) resumeSeq() uint64 {
-	if len(a.open) == 0 {
-		return a.lastSeq + 1
+	m := a.lastSeq + 1
+	for _, w := range a.open {
+		m = min(m, w.minSeq)
 	}
-	m := a.open[0].minSeq
-	for _, w := range a.open[1:] {
-		if w.minSeq < m {
-			m = w.minSeq
+	for _, h := range a.held {
+		for _, x := range h {
+			m = min(m, x.seq)
 		}
 	}
 	return m

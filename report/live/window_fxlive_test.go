@@ -1,14 +1,16 @@
 package live
 
 import (
+	"strings"
 	"testing"
 	"time"
 )
 
 // One sensor's batch stamped ten minutes ahead (well within max_ahead)
-// is refused as ahead of the other sensors; it does not close their
-// windows, they lose no sample, and the glitching sensor's next correct
-// batch is accepted. Five sensors at 100 Hz, 0.1 s batches, 1 s windows,
+// is held back as ahead of the other sensors; it does not close their
+// windows, they lose no sample, and when the glitching sensor's next
+// batch is in line with the others again it is accepted and the held one
+// given up (to be refused). Five sensors at 100 Hz, 0.1 s batches, 1 s windows,
 // 2 s grace (the harrow-fen site's settings).
 func TestOneSensorAheadIsolated(t *testing.T) {
 	const t0 = 1796104800.0
@@ -24,13 +26,21 @@ func TestOneSensorAheadIsolated(t *testing.T) {
 			start := t0 + 0.1*float64(b)
 			if s == 4 && b == 20 {
 				res, _ := a.add(s, seq, mkBatch(start+600, 100, 10, 0), now)
-				if res != ahead {
-					t.Fatalf("batch 600 s ahead of four sensors: %v, want ahead", res)
+				if res != heldBack {
+					t.Fatalf("batch 600 s ahead of four sensors: %v, want heldBack", res)
 				}
 				continue
 			}
 			if res, dropped := a.add(s, seq, mkBatch(start, 100, 10, 0), now); res != added || dropped != 0 {
 				t.Fatalf("batch %d sensor %d: %v, %d dropped", b, s, res, dropped)
+			}
+			rej := a.takeRejected()
+			if s == 4 && b == 21 {
+				if len(rej) != 1 || rej[0].b.Time[0] != start-0.1+600 || !strings.Contains(rej[0].why, "its clock jumped") {
+					t.Fatalf("the held batch was not given up when its sensor came back in line: %+v", rej)
+				}
+			} else if len(rej) != 0 {
+				t.Fatalf("batch %d sensor %d: %d batches given up", b, s, len(rej))
 			}
 			closed = append(closed, a.ready(now, 0)...)
 		}
@@ -102,5 +112,49 @@ func TestQuorumWithSilentSensors(t *testing.T) {
 				}
 			}
 		})
+	}
+}
+
+// All sensors resuming after a gap in the data (a log with a pause, a
+// gateway that was down) are not taken for clock jumps: the first
+// sensor's batch after the gap is held only until a second sensor's
+// arrives, and no sample is lost.
+func TestGapInAllSensorsKept(t *testing.T) {
+	const t0 = 1796104800.0
+	a := newAssembler(time.Second, 2*time.Second, 5)
+	a.stale = 5 * time.Second
+	now := time.Unix(1796104800, 0) // a replay at full speed: the wall clock barely moves
+	seq := uint64(0)
+	var closed []*window
+	for b := 0; b < 100; b++ {
+		start := t0 + 0.1*float64(b)
+		if b >= 30 {
+			start += 90 // 90 s without data after 3 s
+		}
+		for s := 0; s < 5; s++ {
+			seq++
+			res, _ := a.add(s, seq, mkBatch(start, 100, 10, 0), now)
+			if want := added; b == 30 && s == 0 {
+				if res != heldBack {
+					t.Fatalf("first batch after the gap: %v, want heldBack", res)
+				}
+			} else if res != want {
+				t.Fatalf("batch %d sensor %d: %v", b, s, res)
+			}
+			if rej := a.takeRejected(); len(rej) != 0 {
+				t.Fatalf("batch %d sensor %d: %d batches given up", b, s, len(rej))
+			}
+			closed = append(closed, a.ready(now, 0)...)
+		}
+	}
+	closed = append(closed, a.ready(now.Add(10*time.Second), 5*time.Second)...)
+	var total int
+	for _, w := range closed {
+		for s := range 5 {
+			total += w.Sensors[s].len()
+		}
+	}
+	if total != 100*5*10 {
+		t.Fatalf("%d samples in closed windows, want %d", total, 100*5*10)
 	}
 }

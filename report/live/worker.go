@@ -327,17 +327,16 @@ func (w *assetWorker) handle(m jetstream.Msg) error {
 		return w.deadLetter(broker.ReasonMalformed, subj, seq, data, err)
 	}
 	t0 = time.Now()
-	res, _ := w.asm.add(si, seq, b, t0)
+	res, _ := w.asm.addMsg(si, seq, b, t0, subj, data)
 	met.stage.WithLabelValues("assemble").Observe(time.Since(t0).Seconds())
 	switch res {
 	case outOfRange:
 		return w.deadLetter(broker.ReasonMalformed, subj, seq, data,
 			fmt.Errorf("live: %s: times %v to %v give window indices beyond %v", subj, b.Time[0], b.Time[b.Len()-1], float64(maxWindowIndex)))
-	case ahead:
-		q, k := w.asm.others(t0, si)
-		return w.deadLetter(broker.ReasonMalformed, subj, seq, data,
-			fmt.Errorf("live: %s: batch starts at %v (%s), %.6g s ahead of all %d other sensors of the asset sending now (more than grace plus a window): the sensor's clock is wrong",
-				subj, b.Time[0], unixString(b.Time[0]), b.Time[0]-q, k))
+	case heldBack:
+		met.messages.WithLabelValues(w.asset.Name, "held").Inc()
+		w.log.Warn("batch held: far ahead of every other sensor", "subject", subj, "seq", seq, "start", b.Time[0])
+		return w.refuseRejected(t0)
 	case outOfOrder:
 		return w.deadLetter(broker.ReasonOutOfOrder, subj, seq, data,
 			fmt.Errorf("live: %s: batch starts at %v, not after the sensor's last sample", subj, b.Time[0]))
@@ -351,7 +350,25 @@ func (w *assetWorker) handle(m jetstream.Msg) error {
 	}
 	met.messages.WithLabelValues(w.asset.Name, "accepted").Inc()
 	met.samples.WithLabelValues(w.asset.Name).Add(float64(b.Len()))
+	if err := w.refuseRejected(t0); err != nil {
+		return err
+	}
 	return w.closeReady(t0, 0)
+}
+
+// refuseRejected dead-letters the batches the assembler held back as far
+// ahead of the other sensors and then gave up.
+func (w *assetWorker) refuseRejected(now time.Time) error {
+	for _, h := range w.asm.takeRejected() {
+		b := h.b
+		err := w.deadLetter(broker.ReasonMalformed, h.subj, h.seq, h.data,
+			fmt.Errorf("live: %s: batch from %v (%s) to %v started more than grace plus a window ahead of every other sensor of the asset and was given up: %s",
+				h.subj, b.Time[0], unixString(b.Time[0]), b.Time[b.Len()-1], h.why))
+		if err != nil {
+			return err
+		}
+	}
+	return nil
 }
 
 // minSensorTime is the earliest sample time accepted, 2000-01-01T00:00:00Z
@@ -432,6 +449,9 @@ func (w *assetWorker) deadLetter(reason, subj string, seq uint64, data []byte, c
 // closeReady publishes the windows that can be closed now.
 func (w *assetWorker) closeReady(now time.Time, idle time.Duration) error {
 	ws := w.asm.ready(now, idle)
+	if err := w.refuseRejected(now); err != nil {
+		return err
+	}
 	if len(ws) == 0 {
 		return nil
 	}
