@@ -221,3 +221,26 @@ func TestWeightedSolveMatchesFitStrengths(t *testing.T) {
 		t.Errorf("fit: FitStrengths chi2 %v dof %d rms %v, weighted %v %d %v", plain.Chi2, plain.DOF, plain.RMS, wt.Chi2, wt.DOF, wt.RMS)
 	}
 }
+
+// The stuck alarm's value is the value repeated on the stuck axis.
+func TestStuckAlarmValue(t *testing.T) {
+	a, p := fenwickProcessor(t)
+	rng := rand.New(rand.NewPCG(4, 4))
+	w := synthWindow(a, []complex128{200, -200}, [3]float64{}, 1796104815, 500, 500, 2, rng)
+	for i := range w.Sensors[3].Bz {
+		w.Sensors[3].Bz[i] = -45000
+	}
+	r := p.reduce(w)
+	var found bool
+	for _, al := range r.alarms {
+		if al.Kind == AlarmStuck {
+			found = true
+			if al.Subject != a.Sensors[3].Name || al.Value != -45000 || !strings.Contains(al.Message, "axis z") {
+				t.Errorf("stuck alarm %+v, want sensor %s, value -45000 on axis z", al, a.Sensors[3].Name)
+			}
+		}
+	}
+	if !found {
+		t.Fatal("no stuck alarm")
+	}
+}

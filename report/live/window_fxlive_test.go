@@ -1,9 +1,12 @@
 package live
 
 import (
+	"math"
 	"strings"
 	"testing"
 	"time"
+
+	"undercurrent/ingest/broker"
 )
 
 // One sensor's batch stamped ten minutes ahead (well within max_ahead)
@@ -156,5 +159,34 @@ func TestGapInAllSensorsKept(t *testing.T) {
 	}
 	if total != 100*5*10 {
 		t.Fatalf("%d samples in closed windows, want %d", total, 100*5*10)
+	}
+}
+
+// A 500 Hz sensor sending one or two samples per message: a 1 s window
+// holds 500 samples. Its sample interval is measured from times near
+// 1.8e9 s, where a float64 step is 2^-22 s = 2.4e-7 s (IEEE 754 binary64,
+// 52-bit fraction, exponent 30), so one interval reads 0.002 s within
+// 1.2e-4 relative and L/dt is 500 within 0.06, not the floor 499.
+func TestExpectedFromSmallBatches(t *testing.T) {
+	if ulp := math.Nextafter(1796104800, 2e9) - 1796104800; ulp != math.Ldexp(1, -22) {
+		t.Fatalf("ulp at 1.8e9 s is %g", ulp)
+	}
+	for _, per := range []int{1, 2} {
+		a := newAssembler(time.Second, 2*time.Second, 1)
+		now := time.Unix(0, 0)
+		for i := 0; i < 600; i += per {
+			b := &broker.Batch{}
+			for j := i; j < i+per; j++ {
+				b.Time = append(b.Time, 1796104800+float64(j)/500)
+				b.Bx, b.By, b.Bz = append(b.Bx, 0), append(b.By, 0), append(b.Bz, float64(j))
+			}
+			a.add(0, uint64(i+1), b, now)
+			if i < 2 {
+				continue
+			}
+			if got := a.expected()[0]; got != 500 {
+				t.Fatalf("%d sample(s) per batch, after %d samples: %d expected per window, want 500 (dt %v)", per, i+per, got, a.dt[0])
+			}
+		}
 	}
 }
