@@ -26,6 +26,7 @@ type replayOptions struct {
 	now      bool
 	shift    float64
 	maxAhead time.Duration
+	maxBytes int
 	user     string
 	password string
 	token    string
@@ -56,11 +57,19 @@ partial). With --now the log is shifted by whole minutes, so windows line
 up as in the log; times more than --max-ahead ahead of the clock are held
 back until they are not, since the pipeline refuses them.
 
+Replay reads the data stream's state and waits for the broker's
+acknowledgement of every batch (JetStream), so its account must be allowed
+the JetStream API ($JS.API.>) and replies (_INBOX.>) besides publishing:
+in testdata/site/harrow-fen.toml that is the pipeline account; the gateway
+account only publishes (plain NATS or MQTT) and cannot replay. Leave
+--user and --password out for a broker without accounts. A batch larger
+than the site file's max_message_bytes (1 MiB by default) would be refused
+whole by the pipeline, so replay refuses to send one (--max-message-bytes):
+give a shorter --batch.
+
 Examples (recorded.arrows is written by "undercurrent simulate
 testdata/scenarios/harrow-fen-fixed.toml -o recorded.arrows", as in
-README.md; the site file testdata/site/harrow-fen.toml asks for a user and
-password; give the publisher's, or leave them out for a broker without
-accounts):
+README.md):
   undercurrent replay recorded.arrows --asset fenwick-lane --speed 1 --user pipeline --password change-me-pipeline
   undercurrent replay recorded.arrows --asset fenwick-lane --sensor fl-w1 --speed 0 --format arrow --user pipeline --password change-me-pipeline
   undercurrent replay recorded.arrows --asset fenwick-lane --now --broker nats://127.0.0.1:4222 --user pipeline --password change-me-pipeline`,
@@ -69,9 +78,10 @@ accounts):
 			fs.StringVar(&o.sensor, "sensor", "", "sensor `NAME` for a log without a group column, or to send one group only")
 			fs.Float64Var(&o.speed, "speed", 1, "replay rate relative to real time, `X` (0: as fast as the broker acknowledges)")
 			fs.StringVar(&o.broker, "broker", "nats://127.0.0.1:4222", "NATS `URL` of the broker")
-			fs.DurationVar(&o.batch, "batch", 100*time.Millisecond, "batch `DURATION` per message")
+			fs.DurationVar(&o.batch, "batch", 100*time.Millisecond, "batch `DURATION` per message (each message must stay within --max-message-bytes)")
+			fs.IntVar(&o.maxBytes, "max-message-bytes", 1<<20, "refuse to send a batch larger than `N` bytes: the site file's max_message_bytes, beyond which the pipeline refuses messages (0: no limit)")
 			fs.StringVar(&o.format, "format", "json", "payload encoding: json or arrow")
-			fs.BoolVar(&o.now, "now", false, "shift times so the log starts now (makes an old log look live)")
+			fs.BoolVar(&o.now, "now", false, "shift times by whole minutes so the log starts within the last minute (makes an old log look live)")
 			fs.Float64Var(&o.shift, "shift", 0, "add `S` seconds to every time")
 			fs.DurationVar(&o.maxAhead, "max-ahead", time.Hour, "never send times more than `DURATION` (less a minute) ahead of the clock: the site file's max_ahead, beyond which the pipeline refuses batches; a log shifted with --now and replayed faster than real time is slowed to the clock there (0: no limit)")
 			fs.StringVar(&o.user, "user", "", "broker user")
@@ -121,6 +131,9 @@ func runReplay(ctx context.Context, o *replayOptions, fs *pflag.FlagSet, args []
 	for _, w := range warns {
 		fmt.Fprintf(stdout, "warning: %s\n", w)
 	}
+	if err := checkBatchBytes(args[0], batches, o.format, o.maxBytes, o.batch); err != nil {
+		return err
+	}
 	set := &broker.ReplaySettings{Speed: o.speed, Encoding: enc, Shift: o.shift, MaxAhead: o.maxAhead}
 	if o.maxAhead > 2*replayAheadMargin {
 		set.MaxAhead = o.maxAhead - replayAheadMargin
@@ -154,6 +167,38 @@ func runReplay(ctx context.Context, o *replayOptions, fs *pflag.FlagSet, args []
 		st.Samples, st.Batches, o.asset, st.Sensors, st.From, st.To, st.Duplicates)
 	if st.HeldBack > 0 {
 		fmt.Fprintf(stdout, "held back %d batches that would have run more than %v ahead of the clock (--max-ahead): the pipeline refuses those\n", st.HeldBack, o.maxAhead)
+	}
+	return nil
+}
+
+// checkBatchBytes refuses a replay whose largest batch (of each sensor,
+// by samples) encodes to more than limit bytes: the pipeline would
+// dead-letter every such message as oversized and make no estimate.
+func checkBatchBytes(path string, batches []*broker.Batch, format string, limit int, dur time.Duration) error {
+	if limit <= 0 {
+		return nil
+	}
+	largest := map[string]*broker.Batch{}
+	for _, b := range batches {
+		if c := largest[b.Sensor]; c == nil || b.Len() > c.Len() {
+			largest[b.Sensor] = b
+		}
+	}
+	for _, b := range largest {
+		var data []byte
+		var err error
+		if format == "arrow" {
+			data, err = broker.EncodeArrow(b)
+		} else {
+			data, err = broker.EncodeJSON(b)
+		}
+		if err != nil {
+			return err
+		}
+		if len(data) > limit {
+			return fmt.Errorf("%s: a %v batch of sensor %s (%d samples) is %d bytes as %s, more than --max-message-bytes %d (the site file's max_message_bytes, beyond which the pipeline refuses the message): give a shorter --batch",
+				path, dur, b.Sensor, b.Len(), len(data), format, limit)
+		}
 	}
 	return nil
 }
@@ -252,7 +297,7 @@ func waitForStream(ctx context.Context, js jetstream.JetStream, d time.Duration)
 			return nil
 		}
 		if !errors.Is(err, jetstream.ErrStreamNotFound) && time.Now().After(deadline) {
-			return fmt.Errorf("broker: %w", err)
+			return fmt.Errorf("broker: reading the %s stream's state: %w (replay needs an account allowed the JetStream API, $JS.API.>, and replies, _INBOX.>: a publish-only account cannot replay; see replay --help)", broker.StreamData, err)
 		}
 		if time.Now().After(deadline) {
 			return fmt.Errorf("no %s stream on the broker after %v: is undercurrent serve running?", broker.StreamData, d)

@@ -54,7 +54,8 @@ HTTP API (loopback by default): /healthz, /readyz, /metrics,
 /api/v1/assets, /api/v1/assets/ASSET, /api/v1/assets/ASSET/latest,
 /api/v1/assets/ASSET/history?from=&to=&limit=&format=csv&revisions=,
 /api/v1/alarms?asset=&kind=&from=&to=&since=&limit=&revisions=. from and to are window
-starts (seconds or RFC 3339), since is when an alarm was stored; a listing
+starts (seconds or RFC 3339; from <= start < to), since is when an alarm was
+stored, and a parameter an endpoint does not take is refused; a listing
 returns the first limit results of its range (default 10000, at most
 100000). POST /api/v1/assets/ASSET/recommission and
 POST /api/v1/assets/ASSET/restart?start= (re-read the asset from "new", a

@@ -111,6 +111,21 @@ func decodeJSON(subject string, data []byte) (*Batch, error) {
 		}
 		return nil, fmt.Errorf("broker: %s: %v", subject, err)
 	}
+	// Nothing may follow the batch object: a second object (messages
+	// concatenated by a gateway) would otherwise be dropped unseen.
+	if off := dec.InputOffset(); len(bytes.TrimSpace(data[off:])) > 0 {
+		rest := bytes.TrimLeft(data[off:], " \t\r\n")
+		line, col := lineCol(data, int64(len(data)-len(rest)))
+		return nil, fmt.Errorf("broker: %s: line %d column %d: content after the batch object (one batch per message)", subject, line, col)
+	}
+	// encoding/json leaves a null array element at 0: a reading a gateway
+	// marked missing would become 0 nT. Look for nulls only when the
+	// payload has the word, with a slower decode that keeps them.
+	if bytes.Contains(data, []byte("null")) {
+		if err := findNull(subject, data); err != nil {
+			return nil, err
+		}
+	}
 	b := &Batch{Asset: jb.Asset, Sensor: jb.Sensor, Bx: jb.Bx, By: jb.By, Bz: jb.Bz, Temp: jb.Temp}
 	switch {
 	case jb.Time != nil && jb.T0 != nil:
@@ -129,6 +144,36 @@ func decodeJSON(subject string, data []byte) (*Batch, error) {
 		return nil, fmt.Errorf("broker: %s: missing \"time\" (or \"t0\" and \"rate\")", subject)
 	}
 	return b, nil
+}
+
+// findNull refuses a payload with a null in a number column, naming the
+// row and column (as the Arrow decoder does).
+func findNull(subject string, data []byte) error {
+	var nb struct {
+		Time   []*float64 `json:"time"`
+		T0     *float64   `json:"t0"`
+		Rate   *float64   `json:"rate"`
+		Bx     []*float64 `json:"bx"`
+		By     []*float64 `json:"by"`
+		Bz     []*float64 `json:"bz"`
+		Temp   []*float64 `json:"temp"`
+		Asset  string     `json:"asset"`
+		Sensor string     `json:"sensor"`
+	}
+	if err := json.Unmarshal(data, &nb); err != nil {
+		return fmt.Errorf("broker: %s: %v", subject, err)
+	}
+	for _, c := range []struct {
+		name string
+		v    []*float64
+	}{{"time", nb.Time}, {"bx", nb.Bx}, {"by", nb.By}, {"bz", nb.Bz}, {"temp", nb.Temp}} {
+		for i, x := range c.v {
+			if x == nil {
+				return fmt.Errorf("broker: %s: row %d: column %s: null value (leave a missing reading out of the batch)", subject, i+1, c.name)
+			}
+		}
+	}
+	return nil
 }
 
 // lineCol converts a byte offset into a 1-based line and column.

@@ -5,6 +5,7 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
+	"math/cmplx"
 
 	"github.com/nats-io/nats.go/jetstream"
 )
@@ -72,9 +73,37 @@ func (w *assetWorker) commission(win *window) error {
 	fields := map[int][3]float64{}
 	phasors := map[int][3]complex128{}
 	reds := make([]*reduced, len(w.pending))
+	// AC phasors are referred to cos(2 pi f t): when the grid is off the
+	// site's frequency their phase turns from window to window, so each
+	// window is turned to the phase of the first window's strongest
+	// reading before the average (a common turn of all readings leaves
+	// the geometry unchanged).
+	ref := struct {
+		sensor, axis int
+		phase        complex128 // unit phasor
+	}{sensor: -1}
 	for i, pw := range w.pending {
 		r := w.proc.reduce(pw)
 		reds[i] = r
+		turn := complex(1, 0)
+		if r.in.Phasors != nil {
+			if ref.sensor < 0 {
+				best := 0.0
+				for j, si := range r.used {
+					for k := range 3 {
+						if a := cmplx.Abs(r.in.Phasors[j][k]); a > best {
+							best, ref.sensor, ref.axis = a, si, k
+							ref.phase = r.in.Phasors[j][k] / complex(a, 0)
+						}
+					}
+				}
+			}
+			for j, si := range r.used {
+				if z := r.in.Phasors[j][ref.axis]; si == ref.sensor && z != 0 {
+					turn = ref.phase / (z / complex(cmplx.Abs(z), 0))
+				}
+			}
+		}
 		for j, si := range r.used {
 			counts[si]++
 			pos[si] = r.in.Points[j]
@@ -87,7 +116,7 @@ func (w *assetWorker) commission(win *window) error {
 			} else {
 				p := phasors[si]
 				for k := range 3 {
-					p[k] += r.in.Phasors[j][k]
+					p[k] += r.in.Phasors[j][k] * turn
 				}
 				phasors[si] = p
 			}

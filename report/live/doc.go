@@ -12,9 +12,14 @@
 // With window length L, a sample at time t belongs to window
 // k = floor(t/L); the window spans [kL, (k+1)L). It closes when every
 // sensor's next expected sample (its last time plus its sample interval)
-// falls in a later window, when the furthest sensor is Grace past its end
-// (the lagging sensors are reported silent), or after Idle of wall-clock
-// time without data. Data that was already in the broker when the worker
+// falls in a later window, when a strict majority of the sensors heard
+// from within Idle are Grace past its end (the lagging sensors are
+// reported silent), or after Idle of wall-clock time without data. A
+// batch more than Grace plus a window ahead of every other sensor heard
+// from lately is held until another sensor catches up with it (all
+// sensors resuming after a gap) and refused as malformed when its sensor
+// sends in line with the others again (a clock jump), so one sensor's
+// clock cannot close the others' windows. Data that was already in the broker when the worker
 // took the asset (after a start, a takeover or a restart request) does not
 // show that its publisher is still sending: until newer data arrives the
 // wait is ResumeIdle instead (2 min by default), so that windows rebuilt
@@ -42,11 +47,14 @@
 //	b_ENU = Rz(yaw) Ry(pitch) Rx(roll) b_sensor
 //
 // and reduced to one reading: for DC the window mean; for AC the complex
-// RMS phasor per axis from a three-parameter sine fit at the asset's
+// RMS phasor per axis from a three-parameter sine fit at the window's
 // frequency (IEEE Std 1057, IEEE Std 1241), referenced to absolute time so
-// phases agree across sensors. With a per-sample noise sigma the reading
-// noise is sigma/sqrt(n) (mean of n samples; each quadrature of a sine fit
-// over n samples). The readings go to the fixed-geometry linear solve
+// phases agree across sensors; the window's frequency is the asset's
+// unless a four-parameter fit finds it more than 5 sigma away. An AC
+// sensor sampling below 2.5 times the frequency is left out. With a
+// per-sample noise sigma the reading noise is sigma/sqrt(n), n the
+// sensor's own sample count (mean of n samples; each quadrature of a sine
+// fit over n samples), and unequal sigmas weight the solve. The readings go to the fixed-geometry linear solve
 // (the field is linear in the currents and a uniform background,
 // B = Phi(geometry) c; Golub & Pereyra 1973), which returns currents with
 // one-sigma uncertainties from the covariance s^2 (J^T J)^-1.
@@ -148,7 +156,9 @@
 // over-current (|I| above max_current), imbalance (|sum of the balance
 // conductors' current phasors| above max_imbalance: go and return should
 // cancel; a difference is current leaking to earth), step (change between
-// consecutive windows above step), silent (no samples), stuck (one value
+// consecutive windows above step), silent (no samples from a sensor in a
+// window; with no subject, no data from any sensor for silent_after of
+// wall time), stuck (one value
 // repeated on an axis for a whole window), degraded (reduced chi-square
 // above max_chi2, or the solve failed). Each is published on
 // uc.alarm.<asset>.<kind> with message id "<asset>/<window>/<kind>/<subject>".

@@ -10,9 +10,13 @@ type Estimate struct {
 	Start  float64 `json:"start"` // s, same clock as the sensor times
 	End    float64 `json:"end"`
 	Mode   string  `json:"mode"` // "dc" or "ac"
-	// Frequency is the AC frequency used, Hz.
-	Frequency  float64             `json:"frequency,omitempty"`
-	Conductors []ConductorEstimate `json:"conductors"`
+	// Frequency is the AC frequency the window was demodulated at, Hz:
+	// the site's, or the one found in the window when that differs from
+	// it by more than 5 sigma (FrequencySigma, Hz, then set); phases are
+	// referred to cos(2 pi Frequency t).
+	Frequency      float64             `json:"frequency,omitempty"`
+	FrequencySigma float64             `json:"frequency_sigma_hz,omitempty"`
+	Conductors     []ConductorEstimate `json:"conductors"`
 	// Background is the uniform field fitted with the currents (DC), nT ENU.
 	Background *[3]float64 `json:"background_nt,omitempty"`
 	// RMS is the root-mean-square residual, nT; Chi2 and DOF describe the

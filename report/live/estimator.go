@@ -16,6 +16,10 @@ type SolveInput struct {
 	// Sigma is the one-sigma error of one reading component, nT; 0 means
 	// estimate it from the residuals.
 	Sigma float64
+	// Sigmas, when not nil, gives each reading's own one-sigma error per
+	// component, nT (the service sets it with Sigma, from each sensor's
+	// sample count); an estimator should weight the readings by it.
+	Sigmas []float64
 }
 
 // SolveOutput holds the strengths in the order of the conductors.

@@ -34,7 +34,9 @@ import (
 //	POST /api/v1/assets/{asset}/restart    re-read from ?start= or {"start": ...} (token; 202, see Restarting an asset in the package doc)
 //
 // from and to are window starts on the sensor clock (Unix seconds for live
-// data), given as seconds or RFC 3339 (from later than to is refused);
+// data), given as seconds or RFC 3339, the range half-open: from <= start
+// < to (from later than to is refused, and so is a parameter the endpoint
+// does not take);
 // format is json (the default) or csv for history, json only for alarms;
 // kind is one of AlarmKinds; since (alarms) is when the broker
 // stored the alarm, in the same forms, for clients that poll for new ones.
@@ -147,7 +149,15 @@ func (s *Service) authorised(r *http.Request) bool {
 func (s *Service) read(h http.Handler) http.Handler {
 	return http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
 		if !s.loopback() && !s.authorised(r) {
-			httpError(w, http.StatusUnauthorized, "a bearer token is required off loopback")
+			msg := "a bearer token is required off loopback"
+			if s.site.Service.Token == "" {
+				msg += "; this server has no service token configured (set [service] token, or token_env"
+				if e := s.site.Service.TokenEnv; e != "" {
+					msg += " and $" + e
+				}
+				msg += ", in the site file), so no request can be authorised"
+			}
+			httpError(w, http.StatusUnauthorized, msg)
 			return
 		}
 		h.ServeHTTP(w, r)
@@ -264,8 +274,21 @@ type query struct {
 	opts     []QueryOption
 }
 
-func parseQuery(r *http.Request) (query, error) {
+// parseQuery reads the listing parameters of r; a parameter not in
+// allowed (a misspelt asset= would otherwise list every asset's alarms)
+// is refused.
+func parseQuery(r *http.Request, allowed ...string) (query, error) {
 	q := query{from: -1e300, to: 1e300, limit: DefaultQueryLimit}
+	var unknown []string
+	for k := range r.URL.Query() {
+		if !slices.Contains(allowed, k) {
+			unknown = append(unknown, strconv.Quote(k))
+		}
+	}
+	if len(unknown) > 0 {
+		slices.Sort(unknown)
+		return q, fmt.Errorf("unknown parameter %s: %s takes %s", strings.Join(unknown, ", "), r.URL.Path, strings.Join(allowed, ", "))
+	}
 	// Every parameter of the queries, given empty, is refused rather than
 	// read as not given (asset= would otherwise list every asset's alarms).
 	for _, k := range []string{"from", "to", "since", "limit", "asset", "kind", "format", "revisions"} {
@@ -281,6 +304,9 @@ func parseQuery(r *http.Request) (query, error) {
 		t, err := parseTime(v)
 		if err != nil || math.IsNaN(t) {
 			return q, fmt.Errorf("parameter %s: %q is neither seconds nor an RFC 3339 time", k, v)
+		}
+		if !(math.Abs(t) < 1e300) {
+			return q, fmt.Errorf("parameter %s: %q is not a finite time", k, v)
 		}
 		if k == "from" {
 			q.from = t
@@ -332,7 +358,7 @@ func (s *Service) history(w http.ResponseWriter, r *http.Request) {
 	if a == nil {
 		return
 	}
-	q, err := parseQuery(r)
+	q, err := parseQuery(r, "from", "to", "limit", "format", "revisions")
 	if err != nil {
 		httpError(w, http.StatusBadRequest, err.Error())
 		return
@@ -378,7 +404,7 @@ func writeEstimatesCSV(w http.ResponseWriter, ests []Estimate) {
 }
 
 func (s *Service) alarmList(w http.ResponseWriter, r *http.Request) {
-	q, err := parseQuery(r)
+	q, err := parseQuery(r, "asset", "kind", "from", "to", "since", "limit", "revisions", "format")
 	if err != nil {
 		httpError(w, http.StatusBadRequest, err.Error())
 		return

@@ -2,6 +2,7 @@ package live
 
 import (
 	"fmt"
+	"gonum.org/v1/gonum/mat"
 	"math"
 	"math/cmplx"
 
@@ -44,6 +45,12 @@ func NewInverseEstimator(mode string, conds []ConductorConfig) (Estimator, error
 // strength phasor (RMS) and the phase its argument; the phase sigma is
 // sigma_I/|I| radians to first order.
 func (e *inverseEstimator) Solve(in *SolveInput) (*SolveOutput, error) {
+	if unequal(in.Sigmas) {
+		return e.solveWeighted(in)
+	}
+	if len(in.Sigmas) > 0 {
+		in = &SolveInput{Points: in.Points, Fields: in.Fields, Phasors: in.Phasors, Sigma: in.Sigmas[0]}
+	}
 	p := &inverse.Problem{Points: in.Points, Fields: in.Fields, Phasors: in.Phasors, Sigma: in.Sigma}
 	res, err := inverse.FitStrengths(p, e.sources, nil)
 	if err != nil {
@@ -67,6 +74,127 @@ func (e *inverseEstimator) Solve(in *SolveInput) (*SolveOutput, error) {
 	} else {
 		out.Current = append([]float64(nil), res.Strengths[:n]...)
 		bg := res.Background
+		out.Background = &bg
+	}
+	return out, nil
+}
+
+// unequal reports whether the sigmas are not all the same.
+func unequal(sig []float64) bool {
+	for _, v := range sig {
+		if v != sig[0] {
+			return true
+		}
+	}
+	return false
+}
+
+// solveWeighted is Solve for readings of unequal sigma: the same model
+// (the conductors' fields from inverse.ReadingBasis and a uniform
+// background) fitted by weighted least squares, each row divided by its
+// reading's sigma (Aitken's generalised least squares for independent
+// errors), solved by QR. The covariance of the strengths is
+// (A' W A)^-1 with W = diag(1/sigma_i^2) and chi-square the weighted
+// residual sum of squares.
+func (e *inverseEstimator) solveWeighted(in *SolveInput) (*SolveOutput, error) {
+	n := len(in.Points)
+	ac := in.Phasors != nil
+	switch {
+	case len(in.Sigmas) != n:
+		return nil, fmt.Errorf("%d sigmas for %d readings", len(in.Sigmas), n)
+	case ac && len(in.Phasors) != n, !ac && len(in.Fields) != n:
+		return nil, fmt.Errorf("readings and points differ in number")
+	}
+	p := &inverse.Problem{Points: in.Points, Fields: in.Fields, Phasors: in.Phasors}
+	ns := 0
+	var bases [][][][3]float64
+	for _, src := range e.sources {
+		b, err := inverse.ReadingBasis(p, src)
+		if err != nil {
+			return nil, err
+		}
+		bases = append(bases, b)
+		ns += src.NumStrengths()
+	}
+	m, q, nr := 3*n, ns+3, 1
+	if ac {
+		nr = 2
+	}
+	if m <= q {
+		return nil, fmt.Errorf("%d readings (3 axes each) are too few for %d strengths", n, q)
+	}
+	A := mat.NewDense(m, q, nil)
+	Y := mat.NewDense(m, nr, nil)
+	for i := range n {
+		s := in.Sigmas[i]
+		if !(s > 0) || math.IsInf(s, 0) {
+			return nil, fmt.Errorf("reading %d: sigma %v is not positive", i+1, s)
+		}
+		for j := range 3 {
+			row := 3*i + j
+			col := 0
+			for si, src := range e.sources {
+				for c := range src.NumStrengths() {
+					A.Set(row, col, bases[si][i][c][j]/s)
+					col++
+				}
+			}
+			A.Set(row, ns+j, 1/s)
+			if ac {
+				Y.Set(row, 0, real(in.Phasors[i][j])/s)
+				Y.Set(row, 1, imag(in.Phasors[i][j])/s)
+			} else {
+				Y.Set(row, 0, in.Fields[i][j]/s)
+			}
+		}
+	}
+	var qr mat.QR
+	qr.Factorize(A)
+	var coef mat.Dense
+	if err := qr.SolveTo(&coef, false, Y); err != nil {
+		return nil, fmt.Errorf("the currents cannot be separated with these readings: %w", err)
+	}
+	var ata mat.SymDense
+	ata.SymOuterK(1, A.T())
+	var ch mat.Cholesky
+	if !ch.Factorize(&ata) {
+		return nil, fmt.Errorf("the currents cannot be separated with these readings")
+	}
+	var cov mat.SymDense
+	if err := ch.InverseTo(&cov); err != nil {
+		return nil, err
+	}
+	var pred mat.Dense
+	pred.Mul(A, &coef)
+	var chi2, rss float64
+	for row := range m {
+		s := in.Sigmas[row/3]
+		for k := range nr {
+			r := Y.At(row, k) - pred.At(row, k)
+			chi2 += r * r
+			rss += r * r * s * s
+		}
+	}
+	out := &SolveOutput{RMS: math.Sqrt(rss / float64(m)), Chi2: chi2, DOF: m*nr - q*nr}
+	for j := range ns {
+		sig := math.Sqrt(math.Max(cov.At(j, j), 0))
+		out.CurrentSigma = append(out.CurrentSigma, sig)
+		if ac {
+			z := complex(coef.At(j, 0), coef.At(j, 1))
+			mag := cmplx.Abs(z)
+			out.Current = append(out.Current, mag)
+			out.Phase = append(out.Phase, cmplx.Phase(z)*180/math.Pi)
+			ps := 180.0
+			if mag > 0 {
+				ps = math.Min(180, sig/mag*180/math.Pi)
+			}
+			out.PhaseSigma = append(out.PhaseSigma, ps)
+		} else {
+			out.Current = append(out.Current, coef.At(j, 0))
+		}
+	}
+	if !ac {
+		bg := [3]float64{coef.At(ns, 0), coef.At(ns+1, 0), coef.At(ns+2, 0)}
 		out.Background = &bg
 	}
 	return out, nil

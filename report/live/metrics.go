@@ -1,6 +1,9 @@
 package live
 
 import (
+	"sync"
+	"time"
+
 	"github.com/prometheus/client_golang/prometheus"
 	"github.com/prometheus/client_golang/prometheus/collectors"
 )
@@ -17,7 +20,7 @@ type metrics struct {
 	stage       *prometheus.HistogramVec // stage
 	latency     *prometheus.HistogramVec // asset
 	pending     *prometheus.GaugeVec     // asset
-	dataLag     *prometheus.GaugeVec     // asset
+	dataLag     *lagCollector            // asset
 	queryReads  *prometheus.CounterVec   // query
 	leases      prometheus.Gauge
 	takeovers   prometheus.Counter
@@ -45,8 +48,8 @@ func newMetrics() *metrics {
 		Buckets: prometheus.ExponentialBuckets(1e-4, 2, 16)}, []string{"asset"})
 	m.pending = prometheus.NewGaugeVec(prometheus.GaugeOpts{Name: "uc_pending_messages",
 		Help: "Sensor messages stored but not yet read, by asset (consumer lag)."}, []string{"asset"})
-	m.dataLag = prometheus.NewGaugeVec(prometheus.GaugeOpts{Name: "uc_data_lag_seconds",
-		Help: "Wall-clock time minus the end of the last published window, by asset (live data with Unix times)."}, []string{"asset"})
+	m.dataLag = &lagCollector{now: time.Now, end: map[string]float64{}, desc: prometheus.NewDesc("uc_data_lag_seconds",
+		"Wall-clock time minus the end of the last published window, by asset (live data with Unix times), at the time of the scrape.", []string{"asset"}, nil)}
 	m.queryReads = prometheus.NewCounterVec(prometheus.CounterOpts{Name: "uc_query_messages_read_total",
 		Help: "Stored messages read to answer API queries (positioning probes and messages scanned), by query (history, alarms)."}, []string{"query"})
 	m.leases = prometheus.NewGauge(prometheus.GaugeOpts{Name: "uc_assets_held", Help: "Assets this worker holds."})
@@ -56,4 +59,38 @@ func newMetrics() *metrics {
 		m.stage, m.latency, m.pending, m.dataLag, m.queryReads, m.leases, m.takeovers,
 		collectors.NewGoCollector(), collectors.NewProcessCollector(collectors.ProcessCollectorOpts{}))
 	return m
+}
+
+// lagCollector reports uc_data_lag_seconds at scrape time, so that the
+// lag keeps growing while no window is published (all sensors silent).
+type lagCollector struct {
+	desc *prometheus.Desc
+	now  func() time.Time
+	mu   sync.Mutex
+	end  map[string]float64 // asset -> end of its last published window, s
+}
+
+// published records the end of an asset's last published window.
+func (c *lagCollector) published(asset string, end float64) {
+	c.mu.Lock()
+	c.end[asset] = end
+	c.mu.Unlock()
+}
+
+// forget drops an asset this worker no longer holds.
+func (c *lagCollector) forget(asset string) {
+	c.mu.Lock()
+	delete(c.end, asset)
+	c.mu.Unlock()
+}
+
+func (c *lagCollector) Describe(ch chan<- *prometheus.Desc) { ch <- c.desc }
+
+func (c *lagCollector) Collect(ch chan<- prometheus.Metric) {
+	now := float64(c.now().UnixNano()) / 1e9
+	c.mu.Lock()
+	defer c.mu.Unlock()
+	for a, e := range c.end {
+		ch <- prometheus.MustNewConstMetric(c.desc, prometheus.GaugeValue, now-e, a)
+	}
 }

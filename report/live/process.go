@@ -64,18 +64,41 @@ type reduced struct {
 	samples int
 	missing map[string]string
 	alarms  []Alarm
+	// freq is the AC frequency the window was demodulated at, Hz, and
+	// freqSigma its uncertainty (0 when it is the site's frequency).
+	freq, freqSigma float64
 }
 
 // minSamples is the fewest samples a sensor needs in a window to be used:
 // a three-parameter sine fit needs more than three (IEEE Std 1057).
 const minSamples = 4
 
+// nyquistFactor is the lowest sample rate, in multiples of the AC
+// frequency, at which a sensor's samples are demodulated: the sampling
+// theorem needs a rate above twice the frequency for both quadratures of
+// the phasor to be observable (at exactly 2f the sine term vanishes at
+// every sample); 2.5 leaves a margin for the frequency's wander.
+const nyquistFactor = 2.5
+
+// maxFreqOffset is how far from the site's frequency, Hz, the AC
+// frequency is looked for in each window (statutory grid limits are
+// within 1 %, 0.5 Hz at 50 Hz).
+const maxFreqOffset = 1.0
+
+// sensorData is one usable sensor's calibrated samples in a window.
+type sensorData struct {
+	i          int
+	t          []float64
+	bx, by, bz []float64
+}
+
 // reduce calibrates, rotates and averages (DC) or demodulates (AC) each
-// sensor's samples, and raises silent and stuck alarms.
+// sensor's samples, and raises silent and stuck alarms. AC windows are
+// demodulated at the frequency found in the window (see windowFrequency).
 func (p *processor) reduce(w *window) *reduced {
 	a := p.asset
-	r := &reduced{missing: map[string]string{}}
-	var ns []int
+	r := &reduced{missing: map[string]string{}, freq: a.Frequency}
+	var use []sensorData
 	for i, s := range a.Sensors {
 		sr := w.Sensors[i]
 		n := sr.len()
@@ -92,29 +115,42 @@ func (p *processor) reduce(w *window) *reduced {
 			r.missing[s.Name] = sampleCount(n, exp) + ", too few to use"
 			continue
 		}
-		if axis := stuckAxis(&sr); axis != "" {
+		if axis, v := stuckAxis(&sr); axis != "" {
 			r.missing[s.Name] = "stuck"
-			r.alarms = append(r.alarms, p.alarm(w, AlarmStuck, s.Name, sr.Bx[0], 0,
+			r.alarms = append(r.alarms, p.alarm(w, AlarmStuck, s.Name, v, 0,
 				fmt.Sprintf("sensor %s repeated one value on axis %s for %d samples", s.Name, axis, n)))
 			continue
+		}
+		if a.Mode == "ac" {
+			// The rate from times near 2e9 s carries rounding: 1e-6 of slack.
+			if rate := float64(n-1) / (sr.T[n-1] - sr.T[0]); !(rate*(1+1e-6) >= nyquistFactor*a.Frequency) {
+				r.missing[s.Name] = fmt.Sprintf("sample rate %.4g Hz is below %.2g times the %.4g Hz frequency (sampling theorem: above 2 f), not used", rate, nyquistFactor, a.Frequency)
+				continue
+			}
 		}
 		if n+1 < exp {
 			// More than one short: one is allowed for a sample on a
 			// boundary or a jittered clock.
 			r.missing[s.Name] = sampleCount(n, exp)
 		}
-		bx := append([]float64(nil), sr.Bx...)
-		by := append([]float64(nil), sr.By...)
-		bz := append([]float64(nil), sr.Bz...)
+		d := sensorData{i: i, t: sr.T, bx: append([]float64(nil), sr.Bx...), by: append([]float64(nil), sr.By...), bz: append([]float64(nil), sr.Bz...)}
 		if c := p.cals[i]; c != nil {
-			c.ApplyColumns(bx, by, bz)
+			c.ApplyColumns(d.bx, d.by, d.bz)
 		}
-		R := p.rot[i]
+		use = append(use, d)
+	}
+	if a.Mode == "ac" && len(use) > 0 {
+		r.freq, r.freqSigma = windowFrequency(use, a.Frequency)
+	}
+	var ns []int
+	for _, d := range use {
+		s := a.Sensors[d.i]
+		R := p.rot[d.i]
 		if a.Mode == "ac" {
 			var ph [3]complex128
 			ok := true
-			for k, col := range [][]float64{bx, by, bz} {
-				f, err := calibrate.FitSine(sr.T, col, a.Frequency, nil)
+			for k, col := range [][]float64{d.bx, d.by, d.bz} {
+				f, err := calibrate.FitSine(d.t, col, r.freq, nil)
 				if err != nil {
 					r.missing[s.Name] = err.Error()
 					ok = false
@@ -133,25 +169,108 @@ func (p *processor) reduce(w *window) *reduced {
 			}
 			r.in.Phasors = append(r.in.Phasors, e)
 		} else {
-			m := [3]float64{mean(bx), mean(by), mean(bz)}
+			m := [3]float64{mean(d.bx), mean(d.by), mean(d.bz)}
 			var e [3]float64
 			for row := range 3 {
 				e[row] = R[row][0]*m[0] + R[row][1]*m[1] + R[row][2]*m[2]
 			}
 			r.in.Fields = append(r.in.Fields, e)
 		}
+		n := len(d.t)
 		r.in.Points = append(r.in.Points, s.Position)
-		r.used = append(r.used, i)
+		r.used = append(r.used, d.i)
 		r.samples += n
 		ns = append(ns, n)
 	}
 	if a.Noise > 0 && len(ns) > 0 {
 		// Noise of a mean of n samples (DC) or of each quadrature of a
-		// sine fit over n samples (AC): sigma / sqrt(n).
-		sort.Ints(ns)
-		r.in.Sigma = a.Noise / math.Sqrt(float64(ns[len(ns)/2]))
+		// sine fit over n samples (AC): sigma / sqrt(n), each sensor with
+		// its own n (weighted least squares needs each reading's own
+		// variance). Sigma keeps the median sensor's, for estimators that
+		// take one value.
+		r.in.Sigmas = make([]float64, len(ns))
+		for k, n := range ns {
+			r.in.Sigmas[k] = a.Noise / math.Sqrt(float64(n))
+		}
+		sorted := append([]int(nil), ns...)
+		sort.Ints(sorted)
+		r.in.Sigma = a.Noise / math.Sqrt(float64(sorted[len(sorted)/2]))
 	}
 	return r
+}
+
+// windowFrequency returns the AC frequency of a window and its one-sigma
+// uncertainty, or nominal and 0 when the window does not show a frequency
+// significantly different from it. The frequency is fitted (IEEE Std
+// 1057 four-parameter sine fit, calibrate.FitSine4) to the sensor axis
+// with the largest variance, started from the best of a scan of
+// three-parameter fits spaced a quarter of 1/span over nominal +/-
+// maxFreqOffset. Its uncertainty is the Cramer-Rao bound for the
+// frequency of a sinusoid of peak amplitude A in white noise sigma,
+// var(omega) = 2 sigma^2 / (A^2 sum (t - tmean)^2). The found frequency is
+// used when it is more than 5 sigma from nominal: a nominal-frequency
+// window keeps its phase reference, while a grid 0.2 Hz off over 1 s no
+// longer loses the sinc(0.2) = 6.5 % of amplitude of demodulating at the
+// nominal frequency.
+func windowFrequency(use []sensorData, nominal float64) (float64, float64) {
+	// The strongest axis by its variance about the mean (A^2/2 plus the
+	// noise's for a sine of peak amplitude A), cheaper than a fit.
+	var best, bt []float64
+	bestVar := 0.0
+	for _, d := range use {
+		for _, col := range [][]float64{d.bx, d.by, d.bz} {
+			m := mean(col)
+			var v float64
+			for _, x := range col {
+				v += (x - m) * (x - m)
+			}
+			if v /= float64(len(col)); v > bestVar {
+				best, bt, bestVar = col, d.t, v
+			}
+		}
+	}
+	if best == nil {
+		return nominal, 0
+	}
+	f0, err := calibrate.FitSine(bt, best, nominal, nil)
+	if err != nil {
+		return nominal, 0
+	}
+	bestAmp := f0.Amplitude()
+	span := bt[len(bt)-1] - bt[0]
+	if !(span > 0) {
+		return nominal, 0
+	}
+	step := 0.25 / span
+	k := int(math.Ceil(maxFreqOffset / step))
+	start, startAmp := nominal, bestAmp
+	for j := -k; j <= k; j++ {
+		fr := nominal + float64(j)*step
+		if j == 0 || fr <= 0 {
+			continue
+		}
+		if f, err := calibrate.FitSine(bt, best, fr, nil); err == nil && f.Amplitude() > startAmp {
+			start, startAmp = fr, f.Amplitude()
+		}
+	}
+	f4, err := calibrate.FitSine4(bt, best, start, nil)
+	if err != nil || !(math.Abs(f4.Freq-nominal) <= maxFreqOffset+step) || !(f4.Amplitude() > 0) {
+		return nominal, 0
+	}
+	var tm, ss float64
+	for _, t := range bt {
+		tm += t - bt[0]
+	}
+	tm /= float64(len(bt))
+	for _, t := range bt {
+		d := t - bt[0] - tm
+		ss += d * d
+	}
+	sigma := math.Sqrt2 * f4.Sigma / (f4.Amplitude() * math.Sqrt(ss)) / (2 * math.Pi)
+	if !(math.Abs(f4.Freq-nominal) > 5*sigma) {
+		return nominal, 0
+	}
+	return f4.Freq, sigma
 }
 
 // sampleCount says how many samples a sensor gave a window: "131 of 500
@@ -166,7 +285,9 @@ func sampleCount(n, exp int) string {
 	return fmt.Sprintf("%d samples", n)
 }
 
-func stuckAxis(s *series) string {
+// stuckAxis returns the first axis that repeats one value through the
+// window, and that value, or "" when none does.
+func stuckAxis(s *series) (string, float64) {
 	for k, col := range [][]float64{s.Bx, s.By, s.Bz} {
 		same := true
 		for _, v := range col[1:] {
@@ -176,10 +297,10 @@ func stuckAxis(s *series) string {
 			}
 		}
 		if same {
-			return [3]string{"x", "y", "z"}[k]
+			return [3]string{"x", "y", "z"}[k], col[0]
 		}
 	}
-	return ""
+	return "", 0
 }
 
 func mean(v []float64) float64 {
@@ -201,7 +322,10 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 		e.Missing = r.missing
 	}
 	if a.Mode == "ac" {
-		e.Frequency = a.Frequency
+		e.Frequency, e.FrequencySigma = r.freq, r.freqSigma
+		if e.Frequency == 0 {
+			e.Frequency = a.Frequency
+		}
 	}
 	alarms := r.alarms
 	out, err := p.est.Solve(&r.in)

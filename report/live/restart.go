@@ -243,7 +243,7 @@ func (w *assetWorker) pendingRestart() (*RestartStatus, uint64, error) {
 // between placing it and marking the request) is kept.
 func (w *assetWorker) applyRestart(req *RestartStatus, rev uint64) error {
 	if w.ck.Restart != req.ID {
-		w.asm = newAssembler(w.asset.Window.Duration, w.svc.site.Service.Grace.Duration, len(w.asset.Sensors))
+		w.asm = w.svc.newAssetAssembler(w.asset)
 		w.asm.lastSeq = req.Seq - 1
 		w.proc.prev = map[string]float64{}
 		w.pending, w.pendDur = nil, 0

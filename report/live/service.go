@@ -184,6 +184,10 @@ func (s *Service) Run(ctx context.Context) error {
 		srv = &http.Server{Handler: s.Handler(), ReadHeaderTimeout: 10 * time.Second}
 		go srv.Serve(ln)
 		s.log.Info("http api listening", "addr", ln.Addr().String())
+		if !s.loopback() && s.site.Service.Token == "" {
+			s.log.Warn("the HTTP API listens off loopback but no service token is configured: every API and /metrics request will be refused (401); set [service] token, or token_env and that variable, or listen on loopback",
+				"addr", ln.Addr().String(), "token_env", s.site.Service.TokenEnv)
+		}
 	}
 	close(s.ready)
 	uctx, ucancel := context.WithCancel(ctx)

@@ -42,9 +42,9 @@ type ServiceConfig struct {
 	// LeaseTTL is how long a dead worker keeps its assets before another
 	// takes over; 0 means 5 s.
 	LeaseTTL Duration `toml:"lease_ttl"`
-	// Grace is how far (in data time) the furthest sensor may run ahead of
-	// a silent one before a window is closed without it; 0 means two
-	// windows.
+	// Grace is how far (in data time) a majority of the sensors heard from
+	// within Idle may run past a window's end before it is closed without
+	// the others; 0 means two windows.
 	Grace Duration `toml:"grace"`
 	// Idle closes open windows after this much wall-clock time without any
 	// data for the asset (end of a replay, all sensors silent); 0 means 5 s.
@@ -56,6 +56,10 @@ type ServiceConfig struct {
 	// with the previous holder can still fill them when it comes back.
 	// Data arriving after the take-over brings back Idle. 0 means 2 min.
 	ResumeIdle Duration `toml:"resume_idle"`
+	// SilentAfter raises a silent alarm for the whole asset (no subject)
+	// when no batch of any of its sensors has arrived for this much wall
+	// time, once per silence; 0 means six times Idle.
+	SilentAfter Duration `toml:"silent_after"`
 	// MaxAhead refuses, as malformed, batches with a sample time more than
 	// this ahead of the broker's clock when the batch was stored (sample
 	// times before 2000-01-01 are always refused); 0 means 1 h.
@@ -228,10 +232,13 @@ func (s *Site) validate() error {
 	if s.Service.MaxAhead.Duration == 0 {
 		s.Service.MaxAhead.Duration = time.Hour
 	}
+	if s.Service.SilentAfter.Duration == 0 {
+		s.Service.SilentAfter.Duration = 6 * s.Service.Idle.Duration
+	}
 	for _, d := range []struct {
 		key string
 		v   time.Duration
-	}{{"idle", s.Service.Idle.Duration}, {"resume_idle", s.Service.ResumeIdle.Duration}, {"max_ahead", s.Service.MaxAhead.Duration}} {
+	}{{"idle", s.Service.Idle.Duration}, {"resume_idle", s.Service.ResumeIdle.Duration}, {"max_ahead", s.Service.MaxAhead.Duration}, {"silent_after", s.Service.SilentAfter.Duration}} {
 		if d.v < 0 {
 			return fmt.Errorf("service.%s %v: want a positive duration", d.key, d.v)
 		}

@@ -58,14 +58,19 @@ func TestAssemblerCompleteWindows(t *testing.T) {
 
 func TestAssemblerGraceAndIdle(t *testing.T) {
 	a := newAssembler(time.Second, 1500*time.Millisecond, 2)
+	a.stale = 2 * time.Second
 	now := time.Unix(1000, 0)
 	a.add(0, 1, mkBatch(0, 10, 10, 0), now) // sensor 0: [0, 1)
 	a.add(1, 2, mkBatch(0, 10, 5, 0), now)  // sensor 1: [0, 0.5) then silent
 	if w := a.ready(now, 0); len(w) != 0 {
 		t.Fatalf("closed %d windows while sensor 1 may still send", len(w))
 	}
+	now = now.Add(3 * time.Second)
 	a.add(0, 3, mkBatch(1, 10, 20, 0), now) // sensor 0 reaches 2.9 s: 1.9 s past the end of window 0
-	w := a.ready(now, 0)
+	if w := a.ready(now.Add(-1500*time.Millisecond), 0); len(w) != 0 {
+		t.Fatalf("closed %d windows while sensor 1, one of two, was heard from lately", len(w))
+	}
+	w := a.ready(now, 0) // sensor 1 silent for 3 s of wall time: sensor 0 alone decides
 	if len(w) != 1 || w[0].Reason != "grace" || w[0].Sensors[1].len() != 5 {
 		t.Fatalf("grace close: %+v", w)
 	}

@@ -51,6 +51,10 @@ type assetWorker struct {
 	// commissioning: windows waiting for the geometry.
 	pending []*window
 	pendDur float64
+	// lastData is the wall time of the last batch filed or held (or of
+	// taking the asset); silent says the asset's silent alarm is raised.
+	lastData time.Time
+	silent   bool
 }
 
 func (s *Service) newAssetWorker(a *AssetConfig) (*assetWorker, error) {
@@ -62,14 +66,23 @@ func (s *Service) newAssetWorker(a *AssetConfig) (*assetWorker, error) {
 	for i, sn := range a.Sensors {
 		w.sens[sn.Name] = i
 	}
-	w.asm = newAssembler(a.Window.Duration, s.site.Service.Grace.Duration, len(a.Sensors))
+	w.asm = s.newAssetAssembler(a)
 	return w, nil
+}
+
+// newAssetAssembler returns the assembler of asset a: a sensor silent for
+// the idle time no longer counts in the quorum that closes windows.
+func (s *Service) newAssetAssembler(a *AssetConfig) *assembler {
+	asm := newAssembler(a.Window.Duration, s.site.Service.Grace.Duration, len(a.Sensors))
+	asm.stale = s.site.Service.Idle.Duration
+	return asm
 }
 
 // run reads the asset's data from its checkpoint until ctx ends, then
 // drains: messages already fetched are processed, complete windows are
 // published and the checkpoint is written.
 func (w *assetWorker) run(ctx context.Context) error {
+	defer w.svc.met.dataLag.forget(w.asset.Name)
 	st := w.svc.stores
 	bg := context.Background()
 	if e, err := st.State.Get(bg, checkpointKey(w.asset.Name)); err == nil {
@@ -156,6 +169,7 @@ func (w *assetWorker) consume(ctx context.Context) (*RestartStatus, uint64, erro
 		for range msgs {
 		}
 	}
+	w.lastData, w.silent = time.Now(), false
 	tick := time.NewTicker(w.tickEvery())
 	defer tick.Stop()
 	var polled time.Time
@@ -177,6 +191,10 @@ func (w *assetWorker) consume(ctx context.Context) (*RestartStatus, uint64, erro
 			}
 		case now := <-tick.C:
 			if err := w.closeReady(time.Now(), w.svc.site.Service.Idle.Duration); err != nil {
+				stop()
+				return nil, 0, err
+			}
+			if err := w.checkSilence(time.Now()); err != nil {
 				stop()
 				return nil, 0, err
 			}
@@ -319,12 +337,17 @@ func (w *assetWorker) handle(m jetstream.Msg) error {
 		return w.deadLetter(broker.ReasonMalformed, subj, seq, data, err)
 	}
 	t0 = time.Now()
-	res, _ := w.asm.add(si, seq, b, t0)
+	res, _ := w.asm.addMsg(si, seq, b, t0, subj, data)
 	met.stage.WithLabelValues("assemble").Observe(time.Since(t0).Seconds())
 	switch res {
 	case outOfRange:
 		return w.deadLetter(broker.ReasonMalformed, subj, seq, data,
 			fmt.Errorf("live: %s: times %v to %v give window indices beyond %v", subj, b.Time[0], b.Time[b.Len()-1], float64(maxWindowIndex)))
+	case heldBack:
+		w.lastData, w.silent = t0, false
+		met.messages.WithLabelValues(w.asset.Name, "held").Inc()
+		w.log.Warn("batch held: far ahead of every other sensor", "subject", subj, "seq", seq, "start", b.Time[0])
+		return w.refuseRejected(t0)
 	case outOfOrder:
 		return w.deadLetter(broker.ReasonOutOfOrder, subj, seq, data,
 			fmt.Errorf("live: %s: batch starts at %v, not after the sensor's last sample", subj, b.Time[0]))
@@ -336,9 +359,71 @@ func (w *assetWorker) handle(m jetstream.Msg) error {
 		return w.deadLetter(broker.ReasonLate, subj, seq, data,
 			fmt.Errorf("live: %s: samples from %v to %v fall in windows already published", subj, b.Time[0], b.Time[b.Len()-1]))
 	}
+	w.lastData, w.silent = t0, false
 	met.messages.WithLabelValues(w.asset.Name, "accepted").Inc()
 	met.samples.WithLabelValues(w.asset.Name).Add(float64(b.Len()))
+	if err := w.refuseRejected(t0); err != nil {
+		return err
+	}
 	return w.closeReady(t0, 0)
+}
+
+// checkSilence raises the asset's silent alarm once no batch has been
+// filed for SilentAfter of wall time: the windows it would have had are
+// never opened, so no window raises the per-sensor silent alarms. The
+// alarm is placed in the window after the last published one.
+func (w *assetWorker) checkSilence(now time.Time) error {
+	after := w.svc.site.Service.SilentAfter.Duration
+	quiet := now.Sub(w.lastData)
+	if w.silent || after <= 0 || quiet < after {
+		return nil
+	}
+	w.silent = true
+	L := w.asset.Window.Seconds()
+	idx := w.ck.Window + 1
+	if w.ck.Done == 0 {
+		idx = int64(math.Floor(float64(now.UnixNano()) / 1e9 / L))
+		for _, t := range w.asm.water {
+			if !math.IsInf(t, -1) && w.asm.index(t) < idx {
+				idx = w.asm.index(t)
+			}
+		}
+	}
+	win := &window{Index: idx, Start: float64(idx) * L, End: float64(idx+1) * L}
+	since := w.lastData.UTC().Format(time.RFC3339)
+	al := w.proc.alarm(win, AlarmSilent, "", quiet.Seconds(), after.Seconds(),
+		fmt.Sprintf("no data from any sensor of asset %s for %.0f s of wall time (since %s)", w.asset.Name, quiet.Seconds(), since))
+	w.log.Warn("asset silent", "since", since)
+	ad, _ := json.Marshal(al)
+	am := nats.NewMsg(broker.AlarmSubject(w.asset.Name, al.Kind))
+	am.Data = ad
+	am.Header.Set(broker.HeaderContentType, broker.ContentJSON)
+	if w.ck.Revision > 0 {
+		am.Header.Set(HeaderRevision, strconv.Itoa(w.ck.Revision))
+	}
+	ack, err := w.svc.publish(am, w.msgID(idx)+"/"+al.Kind+"/"+since)
+	if err != nil {
+		return err
+	}
+	if !ack.Duplicate {
+		w.svc.met.alarms.WithLabelValues(w.asset.Name, al.Kind).Inc()
+	}
+	return nil
+}
+
+// refuseRejected dead-letters the batches the assembler held back as far
+// ahead of the other sensors and then gave up.
+func (w *assetWorker) refuseRejected(now time.Time) error {
+	for _, h := range w.asm.takeRejected() {
+		b := h.b
+		err := w.deadLetter(broker.ReasonMalformed, h.subj, h.seq, h.data,
+			fmt.Errorf("live: %s: batch from %v (%s) to %v started more than grace plus a window ahead of every other sensor of the asset and was given up: %s",
+				h.subj, b.Time[0], unixString(b.Time[0]), b.Time[b.Len()-1], h.why))
+		if err != nil {
+			return err
+		}
+	}
+	return nil
 }
 
 // minSensorTime is the earliest sample time accepted, 2000-01-01T00:00:00Z
@@ -419,6 +504,9 @@ func (w *assetWorker) deadLetter(reason, subj string, seq uint64, data []byte, c
 // closeReady publishes the windows that can be closed now.
 func (w *assetWorker) closeReady(now time.Time, idle time.Duration) error {
 	ws := w.asm.ready(now, idle)
+	if err := w.refuseRejected(now); err != nil {
+		return err
+	}
 	if len(ws) == 0 {
 		return nil
 	}
@@ -507,7 +595,7 @@ func (w *assetWorker) publishWindow(win *window, r *reduced) error {
 	now := time.Now()
 	met.stage.WithLabelValues("publish").Observe(now.Sub(t2).Seconds())
 	met.latency.WithLabelValues(w.asset.Name).Observe(now.Sub(win.Closed).Seconds())
-	met.dataLag.WithLabelValues(w.asset.Name).Set(float64(now.UnixNano())/1e9 - win.End)
+	met.dataLag.published(w.asset.Name, win.End)
 	w.ck.Done, w.ck.Window = win.End, win.Index
 	if w.svc.onEstimate != nil {
 		w.svc.onEstimate(est, now.Sub(win.Closed))

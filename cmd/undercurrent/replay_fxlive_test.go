@@ -1,0 +1,34 @@
+package main
+
+import (
+	"fmt"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+// A --batch whose messages would exceed the site's max_message_bytes is
+// refused before anything is sent (the pipeline would dead-letter every
+// message as oversized and make no estimate), naming the size, the limit
+// and the remedy; a batch within the limit goes on to the broker.
+func TestReplayRefusesOversizedBatches(t *testing.T) {
+	dir := t.TempDir()
+	log := filepath.Join(dir, "fast.csv")
+	var sb strings.Builder
+	sb.WriteString("time,bx,by,bz,group\n")
+	for i := range 2000 { // 2 s at 1 kHz
+		fmt.Fprintf(&sb, "%.3f,%.6f,%.6f,%.6f,s1\n", 1796104800+float64(i)/1000, 12345.678901+float64(i), -6543.21, 45000.123456)
+	}
+	if err := os.WriteFile(log, []byte(sb.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	code, _, errOut := cli(t, "replay", log, "--asset", "fenwick-lane", "--batch", "2s", "--max-message-bytes", "20000", "--broker", "nats://127.0.0.1:1", "--wait", "1ms")
+	if code != 1 || !strings.Contains(errOut, "more than --max-message-bytes 20000") || !strings.Contains(errOut, "give a shorter --batch") || !strings.Contains(errOut, "2000 samples") {
+		t.Errorf("exit %d, %q: want a refusal of the 2 s batch", code, errOut)
+	}
+	code, _, errOut = cli(t, "replay", log, "--asset", "fenwick-lane", "--batch", "100ms", "--max-message-bytes", "20000", "--broker", "nats://127.0.0.1:1", "--wait", "1ms")
+	if code != 1 || strings.Contains(errOut, "max-message-bytes") {
+		t.Errorf("exit %d, %q: want the 100 ms batches to pass the size check (and fail at the absent broker)", code, errOut)
+	}
+}
