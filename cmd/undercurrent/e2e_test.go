@@ -709,6 +709,27 @@ func TestDemo(t *testing.T) {
 	}
 }
 
+// saveInverseCalibration writes into dir a calibration file (cal.json)
+// that undoes a sensor reading m·B + off, and returns its path.
+func saveInverseCalibration(t *testing.T, dir string, m [3][3]float64, off [3]float64) string {
+	t.Helper()
+	var inv mat.Dense
+	if err := inv.Inverse(mat.NewDense(3, 3, []float64{m[0][0], m[0][1], m[0][2], m[1][0], m[1][1], m[1][2], m[2][0], m[2][1], m[2][2]})); err != nil {
+		t.Fatal(err)
+	}
+	cal := &calibrate.Calibration{Version: calibrate.Version, Method: calibrate.MethodEllipsoid, Created: time.Now().UTC(), Offset: off}
+	for i := range 3 {
+		for j := range 3 {
+			cal.Matrix[i][j] = inv.At(i, j)
+		}
+	}
+	calPath := filepath.Join(dir, "cal.json")
+	if err := cal.Save(calPath); err != nil {
+		t.Fatal(err)
+	}
+	return calPath
+}
+
 // TestE2ECalibration: the sensor of the single-line survey reads through a
 // soft-iron matrix and a hard-iron offset. Given the calibration that
 // inverts them, locate recovers the line within its uncertainty and the
@@ -731,20 +752,7 @@ func TestE2ECalibration(t *testing.T) {
 	if err := ingest.WriteSamples(log, s); err != nil {
 		t.Fatal(err)
 	}
-	var inv mat.Dense
-	if err := inv.Inverse(mat.NewDense(3, 3, []float64{m[0][0], m[0][1], m[0][2], m[1][0], m[1][1], m[1][2], m[2][0], m[2][1], m[2][2]})); err != nil {
-		t.Fatal(err)
-	}
-	cal := &calibrate.Calibration{Version: calibrate.Version, Method: calibrate.MethodEllipsoid, Created: time.Now().UTC(), Offset: off}
-	for i := range 3 {
-		for j := range 3 {
-			cal.Matrix[i][j] = inv.At(i, j)
-		}
-	}
-	calPath := filepath.Join(dir, "cal.json")
-	if err := cal.Save(calPath); err != nil {
-		t.Fatal(err)
-	}
+	calPath := saveInverseCalibration(t, dir, m, off)
 	decode := func(args ...string) *resultDoc {
 		out := mustCLI(t, append([]string{"locate", "--json", "--group-by", "group", "--reference-z", "0"}, append(args, log)...)...)
 		var doc resultDoc

@@ -9,9 +9,6 @@ import (
 	"strconv"
 	"strings"
 	"testing"
-	"time"
-
-	"gonum.org/v1/gonum/mat"
 
 	"undercurrent/calibrate"
 	"undercurrent/inverse/simulate"
@@ -70,20 +67,7 @@ func TestLocateNEDCalibration(t *testing.T) {
 	if err := os.WriteFile(log, []byte(b.String()), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	var inv mat.Dense
-	if err := inv.Inverse(mat.NewDense(3, 3, []float64{m[0][0], m[0][1], m[0][2], m[1][0], m[1][1], m[1][2], m[2][0], m[2][1], m[2][2]})); err != nil {
-		t.Fatal(err)
-	}
-	cal := &calibrate.Calibration{Version: calibrate.Version, Method: calibrate.MethodEllipsoid, Created: time.Now().UTC(), Offset: off}
-	for i := range 3 {
-		for j := range 3 {
-			cal.Matrix[i][j] = inv.At(i, j)
-		}
-	}
-	calPath := filepath.Join(dir, "cal.json")
-	if err := cal.Save(calPath); err != nil {
-		t.Fatal(err)
-	}
+	calPath := saveInverseCalibration(t, dir, m, off)
 	out := mustCLI(t, "locate", "--json", "--frame", "ned", "--calibration", calPath, "--group-by", "group", "--reference-z", "0", log)
 	var doc resultDoc
 	if err := json.Unmarshal([]byte(out), &doc); err != nil {

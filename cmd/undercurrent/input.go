@@ -84,13 +84,8 @@ func (f *readFlags) options(fs *pflag.FlagSet) ([]ingest.Option, error) {
 			return nil, err
 		}
 	}
-	for _, u := range f.units {
-		for _, p := range strings.Split(u, ",") {
-			k, v, _ := strings.Cut(p, "=")
-			if _, volts := voltScale(v); volts && fieldAxis(k) >= 0 {
-				return nil, usageErrorf("--unit %s is a voltage: field columns in volts are induction coils' output, which only locate reads, given the coil with --coil turns=N,area=A[,mu=M] (or --coil-response FILE) and the AC frequency with --freq", strings.TrimSpace(p))
-			}
-		}
+	if p, ok := voltageUnit(f.units); ok {
+		return nil, usageErrorf("--unit %s is a voltage: field columns in volts are induction coils' output, which only locate reads, given the coil with --coil turns=N,area=A[,mu=M] (or --coil-response FILE) and the AC frequency with --freq", p)
 	}
 	if len(f.units) > 0 {
 		opts = append(opts, ingest.WithUnits(f.units...))
@@ -518,4 +513,18 @@ func await[T any](ctx context.Context, f func() (T, error)) (T, error) {
 		var zero T
 		return zero, ctx.Err()
 	}
+}
+
+// voltageUnit returns the first KEY=UNIT of the --unit style values units
+// that gives a field axis a voltage unit, trimmed.
+func voltageUnit(units []string) (string, bool) {
+	for _, u := range units {
+		for _, p := range strings.Split(u, ",") {
+			k, v, _ := strings.Cut(p, "=")
+			if _, volts := voltScale(v); volts && fieldAxis(k) >= 0 {
+				return strings.TrimSpace(p), true
+			}
+		}
+	}
+	return "", false
 }

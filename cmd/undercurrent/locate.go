@@ -683,13 +683,8 @@ func baseUnitOptions(o *locateOptions, logs []string, bopts []ingest.Option) ([]
 	if len(o.baseUnits) == 0 {
 		return bopts, nil
 	}
-	for _, u := range o.baseUnits {
-		for _, p := range strings.Split(u, ",") {
-			k, v, _ := strings.Cut(p, "=")
-			if _, volts := voltScale(v); volts && fieldAxis(k) >= 0 {
-				return nil, usageErrorf("--base-unit %s is a voltage: a base log holds a magnetometer's field", strings.TrimSpace(p))
-			}
-		}
+	if p, ok := voltageUnit(o.baseUnits); ok {
+		return nil, usageErrorf("--base-unit %s is a voltage: a base log holds a magnetometer's field", p)
 	}
 	if err := checkOption("--base-unit", "unit ", ingest.WithUnits(o.baseUnits...)); err != nil {
 		return nil, err

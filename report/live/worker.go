@@ -394,6 +394,12 @@ func (w *assetWorker) checkSilence(now time.Time) error {
 	al := w.proc.alarm(win, AlarmSilent, "", quiet.Seconds(), after.Seconds(),
 		fmt.Sprintf("no data from any sensor of asset %s for %.0f s of wall time (since %s)", w.asset.Name, quiet.Seconds(), since))
 	w.log.Warn("asset silent", "since", since)
+	return w.publishAlarm(al, w.msgID(idx)+"/"+al.Kind+"/"+since)
+}
+
+// publishAlarm publishes al on its asset's alarm subject with the message
+// ID id (the broker drops a repeat) and counts it unless it was a repeat.
+func (w *assetWorker) publishAlarm(al Alarm, id string) error {
 	ad, _ := json.Marshal(al)
 	am := nats.NewMsg(broker.AlarmSubject(w.asset.Name, al.Kind))
 	am.Data = ad
@@ -401,7 +407,7 @@ func (w *assetWorker) checkSilence(now time.Time) error {
 	if w.ck.Revision > 0 {
 		am.Header.Set(HeaderRevision, strconv.Itoa(w.ck.Revision))
 	}
-	ack, err := w.svc.publish(am, w.msgID(idx)+"/"+al.Kind+"/"+since)
+	ack, err := w.svc.publish(am, id)
 	if err != nil {
 		return err
 	}
@@ -572,19 +578,8 @@ func (w *assetWorker) publishWindow(win *window, r *reduced) error {
 		met.estimates.WithLabelValues(w.asset.Name, "published").Inc()
 	}
 	for _, al := range alarms {
-		ad, _ := json.Marshal(al)
-		am := nats.NewMsg(broker.AlarmSubject(w.asset.Name, al.Kind))
-		am.Data = ad
-		am.Header.Set(broker.HeaderContentType, broker.ContentJSON)
-		if w.ck.Revision > 0 {
-			am.Header.Set(HeaderRevision, strconv.Itoa(w.ck.Revision))
-		}
-		aack, err := w.svc.publish(am, id+"/"+al.Kind+"/"+al.Subject)
-		if err != nil {
+		if err := w.publishAlarm(al, id+"/"+al.Kind+"/"+al.Subject); err != nil {
 			return err
-		}
-		if !aack.Duplicate {
-			met.alarms.WithLabelValues(w.asset.Name, al.Kind).Inc()
 		}
 	}
 	ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
