@@ -38,6 +38,11 @@ type Calibration struct {
 	Offset [3]float64 `json:"offset_nt"`
 	// OffsetSigma is its standard error where the method gives one, nT.
 	OffsetSigma *[3]float64 `json:"offset_sigma_nt,omitempty"`
+	// Undetermined lists the axes ("x", "y", "z") whose offset the method
+	// could not determine (a flip pair turned about that axis): their offset
+	// is left at 0 and their OffsetSigma, 0, means nothing. Empty when every
+	// axis is determined.
+	Undetermined []string `json:"offset_undetermined,omitempty"`
 	// Matrix is the correction matrix (identity for offset-only methods).
 	Matrix [3][3]float64 `json:"matrix"`
 	// Reference is the field magnitude the matrix maps to, nT (ellipsoid).
@@ -112,6 +117,7 @@ func FromOffset(method string, res *OffsetResult, inputs ...Input) *Calibration 
 	}
 	for k, ok := range res.Determined {
 		if !ok {
+			c.Undetermined = append(c.Undetermined, string("xyz"[k]))
 			c.Notes = append(c.Notes, fmt.Sprintf("offset of the %c axis is not determined by this method and is left at zero", "xyz"[k]))
 		}
 	}

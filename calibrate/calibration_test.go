@@ -182,6 +182,11 @@ func TestFlipAndZeroOffsets(t *testing.T) {
 	if len(c.Notes) != 1 || !strings.Contains(c.Notes[0], "z axis") {
 		t.Errorf("notes %q", c.Notes)
 	}
+	// The file says which axis it could not determine, as data too (its
+	// offset_sigma_nt of 0 there means nothing).
+	if len(c.Undetermined) != 1 || c.Undetermined[0] != "z" {
+		t.Errorf("offset_undetermined %q, want [z]", c.Undetermined)
+	}
 	if _, err := FlipOffset(r0, nil, 2); err == nil {
 		t.Error("empty 180 degree log: want an error")
 	}
