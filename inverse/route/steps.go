@@ -19,11 +19,12 @@ import (
 // Every station's sigma is first widened by tau, the between-station model
 // error (see scatter.go), for the tests and for the sizes reported.
 //
-// A step whose bracket overlaps a bend that quality names (see bends) is
-// not reported as current joining or leaving: the currents fitted near a
-// bend are biased by the turned arm, up by several per cent of the current
-// at the stations nearest the vertex and by a few sigma some depths away,
-// so a rise into the bend and a fall out of it are the model's error. The
+// A step whose bracket overlaps or touches a bend that quality names (see
+// bends) is not reported as current joining or leaving: the currents
+// fitted near a bend are biased by the turned arm, up by several per cent
+// of the current at the stations nearest the vertex and by a few sigma
+// some depths away, so a rise into the bend and a fall out of it are the
+// model's error. The
 // change across the bend is sized instead from the levels either side of
 // it (the stations between left out by plateau, being poor fits) and
 // reported as a step only when those levels differ; otherwise a note in
@@ -252,8 +253,8 @@ const spanStations = plateauStations + maxTransition
 // its error is shared by neighbouring stations and does not average away
 // over a plateau.
 //
-// A run whose bracket overlaps a bend of bs is merged with any others that
-// do into one run across the whole bend, from the sound station before it
+// A run whose bracket overlaps or touches a bend of bs is merged with any
+// others that do into one run across the whole bend, from the sound station before it
 // to the one after (see steps).
 func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64, bs []bend) ([]Finding, map[string]string) {
 	m := len(d.isStep)
@@ -432,7 +433,8 @@ func inBend(bs []bend, x float64) int {
 }
 
 // acrossBends merges the runs (bracketing station indices in u, in route
-// order) whose brackets overlap a bend of bs into one run per bend, from
+// order) whose brackets overlap or touch a bend of bs (the sound stations
+// either side of a bend are biased too, less) into one run per bend, from
 // the last station at or before the bend's start to the first at or after
 // its end. It returns the runs in route order and, beside each, its bend
 // (nil for a run that meets none).
@@ -447,7 +449,7 @@ func acrossBends(u []*Placed, runs [][2]int, bs []bend) ([][2]int, []*bend) {
 		xa, xb := u[run[0]].Chainage, u[run[1]].Chainage
 		k := -1
 		for i := range bs {
-			if xa < bs[i].to && xb > bs[i].from {
+			if xa <= bs[i].to && xb >= bs[i].from {
 				k = i
 				break
 			}
