@@ -14,7 +14,8 @@
 //   - stations whose fit is poor or ambiguous; when the sound stations
 //     either side (within three) differ in direction by 10 degrees or more
 //     in plan, the finding names the bend as the likely cause, with the turn
-//     (bendAt);
+//     (bendAt), and changes in current within the bend are not taken for
+//     steps (see Steps in current);
 //   - dipole-like anomalies: fields better explained by a magnetised
 //     object than by a current. The caller decides (Station.Dipole, with
 //     the object's position in Station.Object); package report refits the
@@ -88,6 +89,28 @@
 // close to a traverse shows partly in the traverse's own current), reported
 // once with its total size. The step is bracketed between the two stations, whose chainages are the
 // finding's range.
+//
+// Such a spread step need not pass the test above in either interval,
+// each holding part of it, though its size from the levels either side is
+// many sigmas. When no single interval is left to find, every span of two
+// intervals that change the same way is tested as the size is measured:
+// two levels and a shared slope fitted to up to eight stations either side,
+// the middle station left out, the step's sigma scaled by the Birge ratio.
+// The largest span whose |step|/sigma exceeds the Bonferroni bound for the
+// route's spans (a route-wide rate of 1% at k = 3; 3.19 for 8 spans, 3.47
+// for 20) is taken as one step over both intervals, and the search goes on
+// (detect, spanTest).
+//
+// Near a bend the straight-line fits are biased by the turned arm: the
+// currents of the stations nearest the vertex read several per cent high
+// and those some depths away a few sigma, so a rise into a bend and a fall
+// out of it are the model's error. Steps whose bracket overlaps a bend that
+// the poor-fit findings name (from the sound station before it to the one
+// after) are merged into one step across the bend, sized from the levels
+// either side of it, and reported only when those differ by k sigma and
+// MinStep, saying it was measured across the bend; otherwise the bend's
+// poor-fit finding says what was withheld (acrossBends). A station inside
+// a named bend is not reported as a current anomaly.
 //
 // Its size is not the difference of the bracketing stations: near the point
 // where current leaves, an infinite-line fit sees a semi-infinite conductor,

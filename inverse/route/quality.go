@@ -175,6 +175,21 @@ const bendNeighbours = 3
 // degrees to the left between T18 and T20" and the signed turn (degrees,
 // positive to the left looking along the route).
 func bendAt(ps []Placed, i int, maxChi float64) (string, float64) {
+	a, b, turn := bendSpan(ps, i, maxChi)
+	if a < 0 {
+		return "", 0
+	}
+	side := "left"
+	if turn < 0 {
+		side = "right"
+	}
+	return fmt.Sprintf("the conductor turns %.0f degrees to the %s between %s and %s", math.Abs(turn), side, label(&ps[a]), label(&ps[b])), turn
+}
+
+// bendSpan finds the bend of bendAt: the indices in ps of the sound
+// stations before and after station i that it is measured between, and
+// the turn (degrees); a and b are -1 when there is none.
+func bendSpan(ps []Placed, i int, maxChi float64) (a, b int, turn float64) {
 	red := func(p *Placed) float64 {
 		if p.DOF > 0 && p.Chi2 > 0 {
 			return p.Chi2 / float64(p.DOF)
@@ -185,7 +200,7 @@ func bendAt(ps []Placed, i int, maxChi float64) (string, float64) {
 	sound := func(p *Placed) bool {
 		return p.usable() && p.Problem == "" && math.Hypot(p.Dir[0], p.Dir[1]) > 0.5 && (maxChi <= 0 || red(p) <= lim)
 	}
-	a, b := -1, -1
+	a, b = -1, -1
 	for j := i - 1; j >= 0 && j >= i-bendNeighbours; j-- {
 		if sound(&ps[j]) {
 			a = j
@@ -199,18 +214,65 @@ func bendAt(ps []Placed, i int, maxChi float64) (string, float64) {
 		}
 	}
 	if a < 0 || b < 0 {
-		return "", 0
+		return -1, -1, 0
 	}
 	u, v := ps[a].Dir, ps[b].Dir
-	turn := math.Atan2(u[0]*v[1]-u[1]*v[0], u[0]*v[0]+u[1]*v[1]) * 180 / math.Pi
+	turn = math.Atan2(u[0]*v[1]-u[1]*v[0], u[0]*v[0]+u[1]*v[1]) * 180 / math.Pi
 	if math.Abs(turn) < bendTurn {
-		return "", 0
+		return -1, -1, 0
 	}
-	side := "left"
-	if turn < 0 {
-		side = "right"
+	return a, b, turn
+}
+
+// bend is a stretch of the route over which quality names a bend: from
+// the sound station before the poorly fitted ones to the sound station
+// after them (overlapping bends merged). Currents fitted there are biased
+// by the turned arm that the straight-line model misses, most at the
+// stations nearest the vertex, so that a change between two of them is no
+// evidence of current joining or leaving (see steps).
+type bend struct {
+	from, to float64 // chainage of the sound stations either side, m
+	a, b     string  // their labels
+	worst    string  // key of the station with the worst fit, where a note goes
+	worstChi float64
+}
+
+// bends returns the bends quality names, in route order: at each station
+// whose fit failed or whose reduced chi-square is over the limit, where
+// bendSpan finds a turn.
+func bends(ps []Placed, set *Settings) []bend {
+	maxChi := set.maxReducedChi2()
+	var out []bend
+	for i := range ps {
+		p := &ps[i]
+		r := 0.0
+		if p.DOF > 0 && p.Chi2 > 0 {
+			r = p.Chi2 / float64(p.DOF)
+		}
+		over := maxChi > 0 && p.DOF > 0 && r > maxChi
+		if !over && p.OK {
+			continue
+		}
+		if !p.OK {
+			r = math.Inf(1)
+		}
+		a, b, _ := bendSpan(ps, i, maxChi)
+		if a < 0 {
+			continue
+		}
+		bd := bend{from: ps[a].Chainage, to: ps[b].Chainage, a: label(&ps[a]), b: label(&ps[b]), worst: p.Key, worstChi: r}
+		if k := len(out) - 1; k >= 0 && bd.from < out[k].to {
+			if bd.to > out[k].to {
+				out[k].to, out[k].b = bd.to, bd.b
+			}
+			if r > out[k].worstChi {
+				out[k].worst, out[k].worstChi = p.Key, r
+			}
+			continue
+		}
+		out = append(out, bd)
 	}
-	return fmt.Sprintf("the conductor turns %.0f degrees to the %s between %s and %s", math.Abs(turn), side, label(&ps[a]), label(&ps[b])), turn
+	return out
 }
 
 func orDefault(s, def string) string {

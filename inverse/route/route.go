@@ -69,9 +69,15 @@ func Build(stations []Station, set *Settings) (*Route, error) {
 	orient(r.Stations)
 
 	r.ModelScatter, r.ScatterWidening = modelScatter(usable(r.Stations), set)
-	r.Findings = append(r.Findings, steps(r.Stations, set, r.ModelScatter, r.ScatterWidening)...)
+	st, notes := steps(r.Stations, set, r.ModelScatter, r.ScatterWidening)
+	r.Findings = append(r.Findings, st...)
 	r.Findings = append(r.Findings, cover(r.Stations, set)...)
-	r.Findings = append(r.Findings, quality(r.Stations, set)...)
+	for _, f := range quality(r.Stations, set) {
+		if f.Kind == KindPoorFit && len(f.Keys) == 1 && notes[f.Keys[0]] != "" {
+			f.Message += notes[f.Keys[0]]
+		}
+		r.Findings = append(r.Findings, f)
+	}
 	r.Findings = append(r.Findings, weakSources(r.Stations, set)...)
 	sort.SliceStable(r.Findings, func(i, j int) bool {
 		a, b := &r.Findings[i], &r.Findings[j]
