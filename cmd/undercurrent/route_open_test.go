@@ -190,3 +190,38 @@ func TestOpenNoLeakClean(t *testing.T) {
 		}
 	}
 }
+
+// TestOpenNearStationSize: leak-sparse2.toml has a traverse 5 m before the
+// defect, which reads about a tenth of the 0.2 A step low (the free
+// azimuth and dip magnify the semi-infinite transition). The sharp step
+// fitted to the levels took that up in its slope: over seeds 1-30 the
+// sizes came out 0.17-0.185 A with z = (size - truth) / sigma of RMS 2.3.
+// The sizing now widens the sigma where leaving out the station beside the
+// fault enlarges the step beyond the noise (inverse/route/plateau.go,
+// nearStation): the RMS of z must be under 2 (1.8 measured; a limit
+// remains where the noise hides the partial reading).
+func TestOpenNearStationSize(t *testing.T) {
+	var sum float64
+	n := 0
+	for seed := 1; seed <= 30; seed++ {
+		doc := openLocate(t, "leak-sparse2.toml", seed, "")
+		for _, f := range stepFindings(doc) {
+			if f.Kind != "current-step" || f.From > 106 || f.To < 104 {
+				t.Errorf("seed %d: false finding %s", seed, f.Message)
+				continue
+			}
+			v := f.Values[0]
+			z := (v.Value + leakLoss) / v.Sigma
+			sum += z * z
+			n++
+		}
+	}
+	if n < 27 {
+		t.Fatalf("the loss was found on %d of 30 seeds, want at least 27", n)
+	}
+	rms := math.Sqrt(sum / float64(n))
+	t.Logf("z RMS %.2f over %d seeds", rms, n)
+	if rms > 2 {
+		t.Errorf("size z RMS %.2f over %d seeds, want at most 2", rms, n)
+	}
+}
