@@ -30,9 +30,9 @@ func checkLogExt(path string) error {
 		return nil
 	}
 	if ext == "" {
-		return fmt.Errorf("no extension: name the file .csv, .arrow, .arrows or .parquet")
+		return fmt.Errorf("no extension: name the file %s", logExtHelp)
 	}
-	return fmt.Errorf("cannot write %q files: use .csv, .arrow, .arrows or .parquet", ext)
+	return fmt.Errorf("cannot write %q files: use %s", ext, logExtHelp)
 }
 
 // checkOutFile checks an output file name before any work is done: its

@@ -64,8 +64,8 @@ service token.
 
 Examples:
   undercurrent serve --config testdata/site/harrow-fen.toml --data /var/lib/undercurrent
-  undercurrent serve --config site.toml --broker nats://10.0.0.1:4222,nats://10.0.0.2:4222,nats://10.0.0.3:4222
-  undercurrent serve --config site.toml --http 127.0.0.1:9000 --worker edge-2`,
+  undercurrent serve --config testdata/site/harrow-fen.toml --broker nats://10.0.0.1:4222,nats://10.0.0.2:4222,nats://10.0.0.3:4222
+  undercurrent serve --config testdata/site/harrow-fen.toml --http 127.0.0.1:9000 --worker edge-2`,
 		setFlags: func(fs *pflag.FlagSet) {
 			fs.StringVar(&o.config, "config", "", "site file `SITE` (TOML)")
 			fs.StringVar(&o.broker, "broker", "", "join the NATS server or cluster at `URL` (comma-separated) instead of starting one")
