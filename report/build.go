@@ -205,7 +205,13 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 		d.Groups = nil
 		stations = make([]route.Station, 0, len(fits))
 		for _, f := range fits {
-			g, st := buildGroup(&f, ac, refSigma, bs.ProfileMax)
+			// With the noise given, each fit is measured against its own
+			// (an AC group's windows may hold fewer samples than another's).
+			ref := refSigma
+			if bs.Noise > 0 && f.Problem != nil && f.Problem.Sigma > 0 {
+				ref = f.Problem.Sigma
+			}
+			g, st := buildGroup(&f, ac, ref, bs.ProfileMax)
 			d.Groups = append(d.Groups, g)
 			stations = append(stations, st)
 		}
@@ -281,7 +287,9 @@ func sharedMisfit(fits []Fit, bs *BuildSettings, rs *route.Settings) string {
 		return ""
 	}
 	limit := rs.MaxReducedChi2
-	if limit == 0 {
+	if limit <= 0 {
+		// Also when the route's own check is off (no reference noise
+		// with fewer than three groups): this warning has its own.
 		limit = 4
 	}
 	minor := rs.MinorMisfit
@@ -297,9 +305,15 @@ func sharedMisfit(fits []Fit, bs *BuildSettings, rs *route.Settings) string {
 		}
 		n++
 		sig := signalRMS(res)
-		if res.RMS > math.Sqrt(limit)*bs.MeasuredNoise && sig > 0 && res.RMS > minor*sig {
+		// An AC fit's RMS is of complex residuals; the windows' noise is
+		// per real component.
+		r := res.RMS
+		if f.Problem != nil && f.Problem.Phasors != nil {
+			r /= math.Sqrt2
+		}
+		if r > math.Sqrt(limit)*bs.MeasuredNoise && sig > 0 && res.RMS > minor*sig {
 			bad++
-			rms = append(rms, res.RMS)
+			rms = append(rms, r)
 			frac = append(frac, res.RMS/sig)
 		}
 	}
@@ -307,7 +321,7 @@ func sharedMisfit(fits []Fit, bs *BuildSettings, rs *route.Settings) string {
 		return ""
 	}
 	m := median(rms)
-	return fmt.Sprintf("%d of %d groups' fits miss the readings by %.3g nT RMS (median), %.3g times the %.3g nT noise the readings themselves show and %.2g%% of the signal: the fitted lines do not describe this field (conductors closer together than the fit can part, such as the two cores of a pair, parallel circuits, or an object), so positions, depths and currents may be wrong although the fits, measured against one another, pass as sound; confirm on site by other means",
+	return fmt.Sprintf("%d of %d groups' fits miss the readings by %.3g nT RMS per component (median), %.3g times the %.3g nT noise the readings themselves show and %.2g%% of the signal: the fitted lines do not describe this field (conductors closer together than the fit can part, such as the two cores of a pair, parallel circuits, or an object), so positions, depths and currents may be wrong although the fits, measured against one another, pass as sound; confirm on site by other means",
 		bad, n, m, m/bs.MeasuredNoise, bs.MeasuredNoise, 100*median(frac))
 }
 
