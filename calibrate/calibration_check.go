@@ -22,6 +22,15 @@ import (
 // hundreds of kilometres from where the calibration was made.
 const MaxReferenceMismatch = 0.02
 
+// MinEarthField and MaxEarthField bound the main field's magnitude at the
+// Earth's surface, nT: about 22 000 nT in the South Atlantic to about
+// 67 000 nT near the south magnetic pole in the IGRF (from memory), rounded
+// outwards.
+const (
+	MinEarthField = 20000.0
+	MaxEarthField = 70000.0
+)
+
 // sensorKeys are the metadata keys (Samples.Meta) that name a log's sensor.
 var sensorKeys = []string{"sensor", "sensor_id", "serial"}
 
@@ -57,10 +66,11 @@ func (c *Calibration) Check(s *ingest.Samples) []string {
 	if got := SensorName(s); c.Sensor != "" && got != "" && got != c.Sensor {
 		warns = append(warns, fmt.Sprintf("%s was taken by sensor %q, but the calibration was made for sensor %q: a calibration belongs to one sensor", source(s), got, c.Sensor))
 	}
-	if !(c.Reference > 0) || checkField(s) != nil {
+	if checkField(s) != nil {
 		return warns
 	}
 	mags := make([]float64, 0, s.Len())
+	raws := make([]float64, 0, s.Len())
 	for i := range s.Bx {
 		r := [3]float64{s.Bx[i], s.By[i], s.Bz[i]}
 		if !finite3(r) {
@@ -68,11 +78,22 @@ func (c *Calibration) Check(s *ingest.Samples) []string {
 		}
 		v := c.Correct(r)
 		mags = append(mags, math.Sqrt(v[0]*v[0]+v[1]*v[1]+v[2]*v[2]))
+		raws = append(raws, math.Sqrt(r[0]*r[0]+r[1]*r[1]+r[2]*r[2]))
 	}
 	if len(mags) == 0 {
 		return warns
 	}
 	med := median(mags, make([]float64, 0, len(mags)))
+	// A log of the Earth's field that the calibration takes out of the
+	// Earth's range has been given the wrong calibration, or one with a
+	// wrong reference; the reference check below cannot see that, since
+	// the field is corrected by the same calibration.
+	if raw := median(raws, make([]float64, 0, len(raws))); raw >= MinEarthField && raw <= MaxEarthField && (med < MinEarthField || med > MaxEarthField) {
+		warns = append(warns, fmt.Sprintf("%s: median |B| is %.0f nT as read but %.0f nT after the calibration, outside the Earth's surface field (%.0f-%.0f nT): the calibration (its reference or scale) does not suit this log, and currents scale with it", source(s), raw, med, MinEarthField, MaxEarthField))
+	}
+	if !(c.Reference > 0) {
+		return warns
+	}
 	if d := (med - c.Reference) / c.Reference; math.Abs(d) > MaxReferenceMismatch {
 		warns = append(warns, fmt.Sprintf("%s: median |B| after the calibration is %.0f nT, %+.1f%% from the %.0f nT the calibration was made in (more than the %.0f%% the Earth's field changes over a site and a day): was the calibration made for another sensor, or far from this site?", source(s), med, 100*d, c.Reference, 100*MaxReferenceMismatch))
 	}

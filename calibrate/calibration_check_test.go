@@ -48,6 +48,14 @@ func TestCheck(t *testing.T) {
 	noSensor.Sensor = ""
 	noRef := other
 	noRef.Reference = 0
+	// A calibration whose scale is a tenth of the sensor's (a reference
+	// typed as 4985 for 49850): the corrected field leaves the Earth's range,
+	// and it agrees with its own reference, so only the range can tell.
+	tenth := *cal
+	tenth.Reference = f / 10
+	for i := range 3 {
+		tenth.Matrix[i][i] /= 10
+	}
 	for _, tc := range []struct {
 		name      string
 		cal       *Calibration
@@ -62,6 +70,7 @@ func TestCheck(t *testing.T) {
 		{"calibration names no sensor", &noSensor, "MAG-0977", 0, nil},
 		{"both wrong", &other, "MAG-0977", 0, []string{`sensor "MAG-0977"`, "median |B|"}},
 		{"no reference to compare", &noRef, "", 0, nil},
+		{"a tenth of the scale", &tenth, "", 0, []string{"nT as read but 4985 nT after the calibration, outside the Earth's surface field"}},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			s := checkLog(cal, f, 1000, tc.anomalous)

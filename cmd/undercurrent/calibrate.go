@@ -101,6 +101,13 @@ Examples:
 			if reference < 0 || math.IsNaN(reference) || math.IsInf(reference, 0) {
 				return usageErrorf("--reference %g: want the site's field magnitude in nT (> 0), or 0 to keep the fitted ellipsoid's volume", reference)
 			}
+			if reference > 0 && (reference < calibrate.MinEarthField || reference > calibrate.MaxEarthField) {
+				hint := ""
+				if reference < 100 {
+					hint = fmt.Sprintf(" (in µT? %g µT is %g nT)", reference, reference*1000)
+				}
+				return usageErrorf("--reference %g nT: the Earth's field at the surface is %g-%g nT%s; give the site's field magnitude in nT", reference, calibrate.MinEarthField, calibrate.MaxEarthField, hint)
+			}
 			if fs.Changed("reference") && spin == "" {
 				return usageErrorf("--reference is for the spin method (--spin)")
 			}
@@ -184,6 +191,17 @@ Examples:
 				res, err := calibrate.FitEllipsoid(r, &calibrate.EllipsoidSettings{Reference: reference, Refine: refine})
 				if err != nil {
 					return inFile(spin, err)
+				}
+				// A sensor's own scale is off by a percent or so, not by a
+				// tenth: a reference that far from the fitted size is a
+				// mistyped value (5009.5 for 50095 made every current ten
+				// times too small, with every fit sound; found in review).
+				// The sensor's own size of the field: W = radius·S with the
+				// ellipsoid's shape S of determinant own⁻³.
+				m := res.Matrix
+				det := m[0][0]*(m[1][1]*m[2][2]-m[1][2]*m[2][1]) - m[0][1]*(m[1][0]*m[2][2]-m[1][2]*m[2][0]) + m[0][2]*(m[1][0]*m[2][1]-m[1][1]*m[2][0])
+				if own := res.Radius / math.Cbrt(det); reference > 0 && own > 0 && math.Abs(reference-own) > maxReferenceScale*own {
+					return usageErrorf("--reference %g nT is %+.0f%% from the %.0f nT the sensor reads the spin's field as: a magnetometer's scale is not that far out; check the value (the site's field magnitude in nT)", reference, 100*(reference-own)/own, own)
 				}
 				cal = calibrate.FromEllipsoid(res, in)
 				spinNotes(cal, res, times, reference, stderr, spin)
@@ -277,6 +295,10 @@ func readCalibrationLog(ctx context.Context, rf *readFlags, opts []ingest.Option
 }
 
 // noReferenceNote begins the note of a spin calibration made without
+// maxReferenceScale is how far, as a fraction, --reference may lie from
+// the fitted ellipsoid's size.
+const maxReferenceScale = 0.1
+
 // --reference, whose scale is the sensor's own; printCalibration then
 // labels the field magnitude "radius", not "reference".
 const noReferenceNote = "no --reference:"

@@ -57,7 +57,7 @@ Examples:
 			}
 			if err := checkLogExt(out); err != nil {
 				// checkLogExt's message, with the other spellings.
-				return usageErrorf("OUT %s: %v (or .txt for CSV, .feather or .ipc for an Arrow IPC file, .pq for Parquet; in any case)", out, err)
+				return usageErrorf("OUT %s: %v", out, err)
 			}
 			if a, errA := filepath.Abs(in); errA == nil {
 				if b, errB := filepath.Abs(out); errB == nil && a == b {

@@ -85,7 +85,7 @@ func TestConvertErrorsLeaveNothing(t *testing.T) {
 		t.Errorf("left behind: %v", ents)
 	}
 	code, _, errOut = ingestRun(t, "convert", bad, filepath.Join(dir, "out.xlsx"))
-	if code != 2 || !strings.Contains(errOut, ".csv, .arrow, .arrows or .parquet") {
+	if code != 2 || !strings.Contains(errOut, "use .csv, .arrow (Arrow IPC file), .arrows (Arrow IPC stream) or .parquet, in any case (.txt is CSV") {
 		t.Errorf("exit %d: %s", code, errOut)
 	}
 	code, _, _ = ingestRun(t, "convert", bad)
