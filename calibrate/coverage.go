@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"sort"
 	"strings"
 
 	"gonum.org/v1/gonum/mat"
@@ -17,9 +18,12 @@ type CoverageSettings struct {
 	// three; readings turned about one axis only give one near 0.
 	// Zero means 0.05.
 	MinEigen float64
-	// MinCap is the smallest acceptable fraction of readings in each of the
-	// six caps of half-angle CapAngle around ±x, ±y, ±z. Even coverage
-	// gives 0.25 for a 60 degree cap. Zero means 0.02.
+	// MinCap is the fraction of readings in each of the six caps of
+	// half-angle CapAngle around ±x, ±y, ±z below which a cap counts as
+	// sparse. Even coverage gives 0.25 for a 60 degree cap. A sparse cap
+	// is a warning (Coverage.Warnings), not a refusal: whether the
+	// readings determine the calibration is for the fitted parameters'
+	// standard errors to say (FitEllipsoid). Zero means 0.02.
 	MinCap float64
 	// CapAngle is the cap half-angle in degrees. Zero means 60.
 	CapAngle float64
@@ -50,7 +54,9 @@ func (s *CoverageSettings) withDefaults() CoverageSettings {
 // Coverage describes how evenly a spin log covers the orientations.
 type Coverage struct {
 	N int `json:"n"`
-	// Centre is the rough centre used (mid-range of each axis), nT.
+	// Centre is the rough centre used, nT: for each axis the midpoint
+	// of its range with the most extreme 5% of the readings at each end
+	// left out, so that a spike or a logger's fill value cannot move it.
 	Centre [3]float64 `json:"centre_nt"`
 	// Eigen holds the eigenvalues of mean(u uᵀ) in ascending order and
 	// Weakest the unit eigenvector of the smallest: the direction, in the
@@ -60,6 +66,9 @@ type Coverage struct {
 	// Caps holds the fraction of readings whose field direction lies within
 	// the cap angle of +x, -x, +y, -y, +z, -z (sensor frame).
 	Caps [6]float64 `json:"caps"`
+	// Warnings say what the coverage lacks without making the log
+	// unusable: caps with fewer than MinCap of the readings.
+	Warnings []string `json:"-"`
 }
 
 var capNames = [6]string{"+x", "-x", "+y", "-y", "+z", "-z"}
@@ -73,8 +82,11 @@ var ErrCoverage = errors.New("spin log does not cover enough orientations")
 var ErrDeadAxis = errors.New("an axis of the sensor does not respond")
 
 // CheckCoverage measures the coverage of readings (sensor frame, nT) and
-// returns an error wrapping ErrCoverage that says what is missing when it
-// falls short of set. The Coverage is returned in both cases.
+// returns an error wrapping ErrCoverage that says what is missing when the
+// readings are too few or lie close to a plane (MinEigen); a sparse cap
+// (MinCap) only adds a warning to Coverage.Warnings. The Coverage is
+// returned in both cases. The directions are taken from a robust centre
+// (see Coverage.Centre), so a few spikes do not count against the log.
 //
 // First it looks for a dead or stuck axis: one whose readings span less
 // than 2% of the widest axis's span while the other two do not keep the
@@ -89,20 +101,11 @@ func CheckCoverage(readings [][3]float64, set *CoverageSettings) (*Coverage, err
 	if len(readings) < cs.MinSamples {
 		return cov, fmt.Errorf("calibrate: %w: %d readings, want at least %d", ErrCoverage, len(readings), cs.MinSamples)
 	}
-	var lo, hi [3]float64
+	lo, hi, tlo, thi := axisRanges(readings)
 	for k := 0; k < 3; k++ {
-		lo[k], hi[k] = math.Inf(1), math.Inf(-1)
+		cov.Centre[k] = 0.5 * (tlo[k] + thi[k])
 	}
-	for _, r := range readings {
-		for k := 0; k < 3; k++ {
-			lo[k] = math.Min(lo[k], r[k])
-			hi[k] = math.Max(hi[k], r[k])
-		}
-	}
-	for k := 0; k < 3; k++ {
-		cov.Centre[k] = 0.5 * (lo[k] + hi[k])
-	}
-	if err := deadAxis(readings, lo, hi, cov.Centre); err != nil {
+	if err := deadAxis(readings, lo, hi, tlo, thi, cov.Centre); err != nil {
 		return cov, err
 	}
 	cosCap := math.Cos(cs.CapAngle * math.Pi / 180)
@@ -174,8 +177,8 @@ func CheckCoverage(readings [][3]float64, set *CoverageSettings) (*Coverage, err
 		}
 	}
 	if len(missing) > 0 {
-		problems = append(problems, fmt.Sprintf(
-			"too few readings with the sensor's %s axis within %g degrees of the field (want at least %.1f%% each; even coverage gives %.0f%%)",
+		cov.Warnings = append(cov.Warnings, fmt.Sprintf(
+			"few readings with the sensor's %s axis within %g degrees of the field (%.1f%% or more each would be usual; even coverage gives %.0f%%)",
 			strings.Join(missing, ", "), cs.CapAngle, 100*cs.MinCap, 100*(1-cosCap)/2))
 	}
 	if len(problems) > 0 {
@@ -184,14 +187,55 @@ func CheckCoverage(readings [][3]float64, set *CoverageSettings) (*Coverage, err
 	return cov, nil
 }
 
+// coverageTrim is the fraction of the readings at each end of an axis's
+// range that CheckCoverage leaves out of the range it centres on.
+const coverageTrim = 0.05
+
+// axisRanges returns each axis's smallest and largest reading, and the
+// same with the most extreme coverageTrim of the readings (at least one
+// when there are more than 50) left out at each end.
+func axisRanges(readings [][3]float64) (lo, hi, tlo, thi [3]float64) {
+	n := len(readings)
+	if n == 0 {
+		return lo, hi, tlo, thi
+	}
+	trim := int(coverageTrim * float64(n))
+	if trim == 0 && n > 50 {
+		trim = 1
+	}
+	vals := make([]float64, n)
+	for k := 0; k < 3; k++ {
+		for i, r := range readings {
+			vals[i] = r[k]
+		}
+		sort.Float64s(vals)
+		lo[k], hi[k] = vals[0], vals[n-1]
+		tlo[k], thi[k] = vals[trim], vals[n-1-trim]
+	}
+	return lo, hi, tlo, thi
+}
+
+// axisCentre returns the rough centre CheckCoverage uses (see
+// Coverage.Centre).
+func axisCentre(readings [][3]float64) [3]float64 {
+	var c [3]float64
+	_, _, tlo, thi := axisRanges(readings)
+	for k := 0; k < 3; k++ {
+		c[k] = 0.5 * (tlo[k] + thi[k])
+	}
+	return c
+}
+
 // deadAxis returns an error wrapping ErrDeadAxis when one axis hardly
 // changes while the other two swing over the field and do not trace the
-// circle of a turn about it (see CheckCoverage).
-func deadAxis(readings [][3]float64, lo, hi, centre [3]float64) error {
+// circle of a turn about it (see CheckCoverage). The spans compared are
+// the trimmed ones (tlo to thi), so one spike on a dead channel does not
+// hide it; lo and hi are the full range.
+func deadAxis(readings [][3]float64, lo, hi, tlo, thi, centre [3]float64) error {
 	var span [3]float64
 	widest := 0.0
 	for k := 0; k < 3; k++ {
-		span[k] = hi[k] - lo[k]
+		span[k] = thi[k] - tlo[k]
 		widest = math.Max(widest, span[k])
 	}
 	if !(widest > 0) {
@@ -223,7 +267,7 @@ func deadAxis(readings [][3]float64, lo, hi, centre [3]float64) error {
 		}
 		name := func(j int) string { return "b" + string("xyz"[j]) }
 		what := fmt.Sprintf("stays within %.3g nT of %.6g nT", span[k], centre[k])
-		if span[k] == 0 {
+		if lo[k] == hi[k] {
 			what = fmt.Sprintf("reads %.6g nT throughout", lo[k])
 		}
 		return fmt.Errorf("calibrate: %w: %s does not change (it %s while %s and %s swing over %.0f and %.0f nT), yet %s and %s do not keep the steady magnitude a turn about %c would give (%.0f%% of the readings lie within half the largest distance of their centre): the %c channel appears dead or stuck; check the sensor, its wiring and the column given for %s",

@@ -93,10 +93,13 @@ type EllipsoidResult struct {
 // maths.
 //
 // Before the fit CheckCoverage refuses a log that does not turn the sensor
-// enough (or whose axis does not respond). Readings pinned at an axis's
-// extreme value (the sensor saturated: see findClipped) are left out, and
-// so are readings whose corrected |B| departs from the fitted radius by
-// more than OutlierSigmas robust standard deviations (spikes): the
+// enough (or whose axis does not respond); a cap of orientations it finds
+// sparse is a warning, as the parameters' standard errors decide whether
+// the log determines them. Readings pinned at an axis's extreme value
+// (see findClipped) that lie well inside the ellipsoid fitted without
+// them (the sensor saturated) are left out, and so are readings whose
+// corrected |B| departs from the fitted radius by more than
+// OutlierSigmas robust standard deviations (spikes): the
 // ellipsoid is refitted without them until the set stops changing. Both
 // are listed in the result with a warning; more than MaxClipped or
 // MaxOutliers of the log is refused. After the fit the standard error of
@@ -147,22 +150,140 @@ func FitEllipsoid(readings [][3]float64, set *EllipsoidSettings) (*EllipsoidResu
 		return nil, fmt.Errorf("calibrate: ellipsoid: %d readings, need at least 10", len(readings))
 	}
 
-	// Saturated readings are left out before the fit.
+	// Readings pinned at an axis's extreme value are candidates for
+	// saturation: they are left out of the first fit, and then kept out
+	// only where they lie well inside the fitted ellipsoid, as a clipped
+	// reading does (its true component is larger than the value read).
 	clip := findClipped(readings)
-	var nClipped int
-	for _, c := range clip {
-		nClipped += c.n
+	clipped := make([]bool, len(readings))
+	markClipped := func() {
+		for i := range clipped {
+			clipped[i] = false
+		}
+		for _, c := range clip {
+			for i, r := range readings {
+				if r[c.axis] == c.value {
+					clipped[i] = true
+				}
+			}
+		}
 	}
-	if f := float64(nClipped) / float64(len(readings)); nClipped > 0 && f > es.MaxClipped {
-		return nil, fmt.Errorf("calibrate: ellipsoid: the readings do not lie on an ellipsoid: %s: %.0f%% of the log, more than the %.0f%% that may be left out; the sensor saturated (its range is smaller than the field it was turned in), or the log was cut off at a limit",
+	markClipped()
+
+	// Fit, then leave out readings far off the fitted ellipsoid and fit
+	// again, until the set of readings used stops changing.
+	use := make([]bool, len(readings))
+	var (
+		fit      ellipsoidFit
+		robustSD float64
+		med      float64
+	)
+	resid := make([]float64, len(readings))
+	// The first fit starts without the clipped candidates and without
+	// readings whose distance from the rough centre of the coverage check
+	// is less than half or more than twice the median distance: no sensor
+	// is distorted that much, but a run of spikes or a logger's fill value
+	// can drag an algebraic fit far enough that the loop below never
+	// finds the ellipsoid. The loop judges every reading again by its
+	// residual, so this only chooses where it starts.
+	centre := axisCentre(readings)
+	dist := make([]float64, len(readings))
+	for i, r := range readings {
+		dist[i] = norm3([3]float64{r[0] - centre[0], r[1] - centre[1], r[2] - centre[2]})
+	}
+	medDist := median(append([]float64(nil), dist...), nil)
+	for i := range use {
+		use[i] = !clipped[i] && dist[i] >= 0.5*medDist && dist[i] <= 2*medDist
+	}
+	fitLoop := func() error {
+		for pass := 0; ; pass++ {
+			var err error
+			fit, err = algebraicFit(subset(readings, use), es.Reference)
+			if err != nil {
+				return err
+			}
+			var dev []float64
+			for i, r := range readings {
+				resid[i] = fit.residual(r)
+				if use[i] {
+					dev = append(dev, resid[i])
+				}
+			}
+			med = median(dev, nil)
+			for i := range dev {
+				dev[i] = math.Abs(dev[i] - med)
+			}
+			// 1.4826 MAD estimates a normal standard deviation; the
+			// floor of 1e-6 of the field keeps exact (noise-free)
+			// readings from counting rounding as outliers.
+			robustSD = math.Max(1.4826*median(dev, nil), 1e-6*fit.radius)
+			changed := false
+			for i := range readings {
+				ok := !clipped[i] && math.Abs(resid[i]-med) <= es.OutlierSigmas*robustSD
+				if ok != use[i] {
+					use[i], changed = ok, true
+				}
+			}
+			if !changed || pass == 9 {
+				return nil
+			}
+		}
+	}
+	clipRefusal := func(f float64) error {
+		return fmt.Errorf("calibrate: ellipsoid: the readings do not lie on an ellipsoid: %s: %.0f%% of the log, more than the %.0f%% that may be left out; the sensor saturated (its range is smaller than the field it was turned in), or the log was cut off at a limit",
 			describeClipped(clip, len(readings)), 100*f, 100*es.MaxClipped)
 	}
-	clipped := make([]bool, len(readings))
-	for _, c := range clip {
-		for i, r := range readings {
-			if r[c.axis] == c.value {
-				clipped[i] = true
+	countClipped := func() int {
+		n := 0
+		for _, c := range clipped {
+			if c {
+				n++
 			}
+		}
+		return n
+	}
+	if err := fitLoop(); err != nil {
+		if n := countClipped(); n > 0 {
+			return nil, clipRefusal(float64(n) / float64(len(readings)))
+		}
+		return nil, err
+	}
+	if len(clip) > 0 {
+		// A run of readings at an axis's extreme is a rail when most of
+		// them lie more than OutlierSigmas robust standard deviations
+		// inside the ellipsoid fitted without them. Readings that repeat
+		// an extreme because they were quantised (as the component along
+		// the axis of a whole turn is) lie on it, within the noise, and
+		// are put back.
+		var rails []clipRun
+		for _, c := range clip {
+			inside := 0
+			for i, r := range readings {
+				if r[c.axis] == c.value && resid[i]-med < -es.OutlierSigmas*robustSD {
+					inside++
+				}
+			}
+			if 2*inside > c.n {
+				rails = append(rails, c)
+			}
+		}
+		if len(rails) < len(clip) {
+			clip = rails
+			markClipped()
+			// Readings put back start in the fit when they lie on the
+			// ellipsoid; those far off it (a logger's fill value repeated)
+			// stay out, as outliers.
+			for i := range use {
+				use[i] = !clipped[i] && math.Abs(resid[i]-med) <= es.OutlierSigmas*robustSD
+			}
+			if err := fitLoop(); err != nil {
+				return nil, err
+			}
+		}
+	}
+	if n := countClipped(); n > 0 {
+		if f := float64(n) / float64(len(readings)); f > es.MaxClipped {
+			return nil, clipRefusal(f)
 		}
 	}
 	for i, c := range clipped {
@@ -171,51 +292,7 @@ func FitEllipsoid(readings [][3]float64, set *EllipsoidSettings) (*EllipsoidResu
 		}
 	}
 	if len(clip) > 0 {
-		res.Warnings = append(res.Warnings, fmt.Sprintf("%s: the sensor saturated there, so those readings are left out of the fit", describeClipped(clip, len(readings))))
-	}
-
-	// Fit, then leave out readings far off the fitted ellipsoid and fit
-	// again, until the set of readings used stops changing.
-	use := make([]bool, len(readings))
-	for i := range use {
-		use[i] = !clipped[i]
-	}
-	var (
-		fit      ellipsoidFit
-		robustSD float64
-	)
-	resid := make([]float64, len(readings))
-	for pass := 0; ; pass++ {
-		var err error
-		fit, err = algebraicFit(subset(readings, use), es.Reference)
-		if err != nil {
-			return nil, err
-		}
-		var dev []float64
-		for i, r := range readings {
-			resid[i] = fit.residual(r)
-			if use[i] {
-				dev = append(dev, resid[i])
-			}
-		}
-		med := median(dev, nil)
-		for i := range dev {
-			dev[i] = math.Abs(dev[i] - med)
-		}
-		// 1.4826 MAD estimates a normal standard deviation; the floor of
-		// 1e-6 of the field keeps exact (noise-free) readings from
-		// counting rounding as outliers.
-		robustSD = math.Max(1.4826*median(dev, nil), 1e-6*fit.radius)
-		changed := false
-		for i := range readings {
-			ok := !clipped[i] && math.Abs(resid[i]-med) <= es.OutlierSigmas*robustSD
-			if ok != use[i] {
-				use[i], changed = ok, true
-			}
-		}
-		if !changed || pass == 9 {
-			break
-		}
+		res.Warnings = append(res.Warnings, fmt.Sprintf("%s: the sensor saturated there (they lie inside the ellipsoid fitted to the other readings), so those readings are left out of the fit", describeClipped(clip, len(readings))))
 	}
 	res.Outliers = res.Outliers[:0]
 	for i, u := range use {
@@ -274,6 +351,19 @@ func FitEllipsoid(readings [][3]float64, set *EllipsoidSettings) (*EllipsoidResu
 	}
 	if err := paramSigmas(kept, res, es.MaxParamSigma); err != nil {
 		return nil, err
+	}
+	if res.Coverage != nil {
+		// A sparse cap is no reason to refuse a fit whose standard errors
+		// show every parameter determined (a sensor held roughly upright
+		// can give one), but it rests on fewer orientations.
+		worst := 0.0
+		for k := 0; k < 3; k++ {
+			worst = math.Max(worst, res.OffsetSigma[k])
+		}
+		for _, w := range res.Coverage.Warnings {
+			res.Warnings = append(res.Warnings, fmt.Sprintf("%s: the fit is kept, as its standard errors show every parameter determined (offsets to ±%.2g nT), but it rests on the orientations the log has; turn the sensor through the missing ones too where it can be",
+				w, worst))
+		}
 	}
 	if res.After.Std > warnSpread*res.Radius {
 		res.Warnings = append(res.Warnings, fmt.Sprintf("corrected |B| still scatters by %.1f nT (%.2f%% of the field), far more than a magnetometer's own noise: if the field changed during the spin or steel was near, the scale can be off by as much; spin again where the field is steady, if the sensor is quieter than that",
@@ -568,8 +658,10 @@ type clipRun struct {
 // turned evenly, each component is uniformly distributed: Archimedes'
 // hat-box theorem), so an extreme value repeated at least three times and
 // at least four times as often as the distinct values within 5% of the
-// axis's range below it is a rail the sensor saturated at, not a
-// quantisation step.
+// axis's range below it is a candidate rail the sensor saturated at.
+// Quantised readings from whole turns repeat an extreme too (the
+// component along the turn axis stays put), so FitEllipsoid keeps a
+// candidate as a rail only when its readings lie inside the ellipsoid.
 func findClipped(readings [][3]float64) []clipRun {
 	var out []clipRun
 	vals := make([]float64, len(readings))

@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"strings"
 )
 
 // OffsetResult is an offset estimate from the flip or zero-field method.
@@ -52,11 +53,12 @@ const (
 // The component along axis keeps its sign and is not determined.
 //
 // The logs are checked against what a flip does, and refused with an error
-// saying what is wrong when the two perpendicular axes both read the same
-// in the two logs (within FlipSameTolerance of the field, or six times the
-// readings' scatter: the logs were not flipped, or one log was given
-// twice), when axis reads differently (by more than FlipAxisTolerance of
-// the field: the sensor was turned about another axis), or when an offset
+// saying what is wrong when axis reads differently (by more than
+// FlipAxisTolerance of the field: the sensor was turned about another
+// axis, named when the two others changed sign), when the two
+// perpendicular axes both read the same in the two logs (within
+// FlipSameTolerance of the field, or six times the readings' scatter: the
+// logs were not flipped, or one log was given twice), or when an offset
 // comes out larger than FlipMaxOffset of the field.
 func FlipOffset(r0, r180 [][3]float64, axis int) (*OffsetResult, error) {
 	if axis < 0 || axis > 2 {
@@ -99,19 +101,56 @@ func checkFlip(m0, m1, s0, s1 [3]float64, axis int, res *OffsetResult) error {
 		scatter := math.Sqrt(s0[k]*s0[k] + s1[k]*s1[k])
 		return math.Abs(diff(k)) < math.Max(FlipSameTolerance*f, 6*scatter)
 	}
-	if same(a) && same(b) {
-		return fmt.Errorf("calibrate: flip: the two logs read the same on %s and %s (means differ by %.0f and %.0f nT in a %.0f nT field), where a turn of 180 degrees about %s changes the sign of both: were they flipped, or is one log given twice?",
-			name(a), name(b), diff(a), diff(b), f, name(axis))
-	}
+	// The flip axis first: turned about another axis, the logs differ
+	// most on it, while one axis across it may read little and so look
+	// "the same" in both.
 	if d := diff(axis); math.Abs(d) > FlipAxisTolerance*f {
 		msg := fmt.Sprintf("calibrate: flip: the flip axis %s reads %.0f nT differently in the two logs (means %.0f and %.0f nT), where a turn about %s leaves it unchanged: was the sensor turned about %s, with that axis held in line?",
 			name(axis), math.Abs(d), m0[axis], m1[axis], name(axis), name(axis))
+		// Which axis was the sensor turned about? The one that reads the
+		// same in both logs while the two others changed sign (each
+		// nearer to its negative than to itself); of several, the one
+		// that explains the means best.
+		best, bestMiss := -1, math.Inf(1)
 		for _, k := range []int{a, b} {
-			if math.Abs(diff(k)) <= FlipAxisTolerance*f {
-				msg += fmt.Sprintf(" (%s reads the same in both: a turn about %s?)", name(k), name(k))
+			if math.Abs(diff(k)) > FlipAxisTolerance*f {
+				continue
+			}
+			miss := math.Abs(diff(k))
+			for j := 0; j < 3; j++ {
+				if j == k {
+					continue
+				}
+				if math.Abs(m0[j]+m1[j]) >= math.Abs(diff(j)) {
+					miss = math.Inf(1)
+				}
+				miss += math.Abs(m0[j] + m1[j])
+			}
+			if miss < bestMiss {
+				best, bestMiss = k, miss
+			}
+		}
+		if best >= 0 {
+			var turned []string
+			for j := 0; j < 3; j++ {
+				if j != best {
+					turned = append(turned, fmt.Sprintf("%s from %.0f to %.0f nT", name(j), m0[j], m1[j]))
+				}
+			}
+			msg += fmt.Sprintf(" (%s reads the same in both: a turn about %s?) %s changed sign, as a turn of 180 degrees about %s makes them: if so, give %s as the flip axis (calibrate --flip-axis %s)",
+				name(best), name(best), strings.Join(turned, " and "), name(best), name(best), name(best))
+		} else {
+			for _, k := range []int{a, b} {
+				if math.Abs(diff(k)) <= FlipAxisTolerance*f {
+					msg += fmt.Sprintf(" (%s reads the same in both: a turn about %s?)", name(k), name(k))
+				}
 			}
 		}
 		return errors.New(msg)
+	}
+	if same(a) && same(b) {
+		return fmt.Errorf("calibrate: flip: the two logs read the same on %s and %s (means differ by %.0f and %.0f nT in a %.0f nT field), and on %s, where a turn of 180 degrees about %s changes the sign of %s and %s: were they flipped, or is one log given twice?",
+			name(a), name(b), diff(a), diff(b), f, name(axis), name(axis), name(a), name(b))
 	}
 	for _, k := range []int{a, b} {
 		if o := res.Offset[k]; math.Abs(o) > FlipMaxOffset*f {

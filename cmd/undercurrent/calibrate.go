@@ -234,7 +234,7 @@ Examples:
 				}
 				res, err := calibrate.FlipOffset(r0, r1, axis)
 				if err != nil {
-					return err
+					return inFile(flip0+" and "+flip180, err)
 				}
 				cal = calibrate.FromOffset(calibrate.MethodFlip, res, in0, in1)
 			}
