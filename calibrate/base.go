@@ -267,7 +267,7 @@ func BaseCorrectColumns(roverName string, rt []float64, rb [3][]float64, baseNam
 	bhi := math.Min(series[0].t[len(series[0].t)-1], math.Min(series[1].t[len(series[1].t)-1], series[2].t[len(series[2].t)-1]))
 	if rhi < blo || rlo > bhi {
 		return nil, fmt.Errorf("calibrate: base correction: base record %s (%s to %s) does not overlap rover log %s (%s to %s)",
-			baseName, fmtTime(blo), fmtTime(bhi), roverName, fmtTime(rlo), fmtTime(rhi))
+			baseName, ft(blo), ft(bhi), roverName, ft(rlo), ft(rhi))
 	}
 	if maxHold >= 0 && (rlo < blo-maxHold || rhi > bhi+maxHold) {
 		far, first := 0, -1
@@ -280,7 +280,7 @@ func BaseCorrectColumns(roverName string, rt []float64, rb [3][]float64, baseNam
 			}
 		}
 		return nil, fmt.Errorf("calibrate: base correction: base record %s (%s to %s) does not cover the rover log %s (%s to %s): %d of %d readings, the first at %s, lie more than %g s outside it, where the base's nearest value held is no correction; give a base record that covers the survey, or allow the hold (locate --base-hold SECONDS)",
-			baseName, fmtTime(blo), fmtTime(bhi), roverName, fmtTime(rlo), fmtTime(rhi), far, len(rt), fmtTime(rt[first]), math.Round(maxHold*1e6)/1e6)
+			baseName, ft(blo), ft(bhi), roverName, ft(rlo), ft(rhi), far, len(rt), ft(rt[first]), math.Round(maxHold*1e6)/1e6)
 	}
 
 	// Rover rows in gaps longer than the limit are refused before any row
@@ -368,7 +368,7 @@ func BaseCorrectColumns(roverName string, rt []float64, rb [3][]float64, baseNam
 	if rep.Outside > 0 {
 		rep.Warnings = append(rep.Warnings, fmt.Sprintf(
 			"base record %s (%s to %s) does not cover the rover log %s (%s to %s): %d of %d rows corrected with the nearest base value held",
-			baseName, fmtTime(blo), fmtTime(bhi), roverName, fmtTime(rlo), fmtTime(rhi), rep.Outside, len(rt)))
+			baseName, ft(blo), ft(bhi), roverName, ft(rlo), ft(rhi), rep.Outside, len(rt)))
 	}
 	if rep.InGap > 0 && maxGap > defGap {
 		rep.Warnings = append(rep.Warnings, fmt.Sprintf(
