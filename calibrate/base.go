@@ -19,22 +19,41 @@ type BaseSettings struct {
 	RefMode string
 	// MaxGap is the longest gap in the base record, s, that rover readings
 	// may fall in: they are interpolated linearly across it. The default
-	// limit, used when MaxGap is zero, is five base sample intervals, at
-	// most MaxGapCeiling; a positive MaxGap allows longer gaps up to it
-	// (with a warning), never fewer; a negative value interpolates across
-	// any gap. A rover reading in a longer gap is an error, for the same
-	// reason as one too far outside the record (MaxHold): a straight line
-	// across minutes of missing base record misses the variation in them.
+	// limit, used when MaxGap is zero, is a time: five base sample
+	// intervals, at least MinGapLimit and at most MaxGapCeiling. A
+	// positive MaxGap sets the limit, above the default (rows in the
+	// longer gaps are interpolated with a warning) or below it, but never
+	// below 1.5 base sample intervals (the spacing of a record with no
+	// reading missing); a negative value interpolates across any gap. A
+	// rover reading in a longer gap is an error, for the same reason as
+	// one too far outside the record (MaxHold): a straight line across
+	// minutes of missing base record misses the variation in them.
 	MaxGap float64
 	// MaxHold is the longest time, s, by which a rover row may lie before
 	// or after the base record and still be corrected, with the base's
 	// nearest value held (and a warning). A row further out is an error:
 	// the diurnal variation moves by nanotesla in minutes, and a value held
-	// that long is no correction. Zero means the default gap limit (five
-	// base sample intervals, at most MaxGapCeiling); a negative value holds
-	// the nearest value for any time.
+	// that long is no correction. Zero means the default gap limit (see
+	// MaxGap); a negative value holds the nearest value for any time.
 	MaxHold float64
+	// LeftOut are the indices of base rows whose values were left out as
+	// spikes (set to NaN by DespikeBaseColumns). The correction
+	// interpolates across them, but they are readings the base station
+	// made: they do not make a gap in the record.
+	LeftOut []int
 }
+
+// MinGapLimit is the least the default gap and hold limits allow, s,
+// however fast the base logger samples. The limit is about the field, not
+// the logger: a straight line is drawn across 60 s between every two
+// readings of one-minute observatory data (IAGA-2002 minute values, the
+// commonest base record), so a 60-s gap in a faster record is no worse
+// than what a minute base gives everywhere. The diurnal variation is slow
+// (its daily range is some tens of nT, a few nT per minute at most: 8 nT
+// a minute at Boulder in November 2014, DOMAIN.md), and the straight line
+// follows its slope; only its curvature is missed, a small fraction of a
+// nanotesla over a minute.
+const MinGapLimit = 60.0
 
 // MaxGapCeiling is the most the default gap and hold limits allow, s,
 // whatever the base record's own sampling: five intervals of one-minute
@@ -67,17 +86,6 @@ type BaseReport struct {
 // baseSeries is one base component without missing values.
 type baseSeries struct{ t, v []float64 }
 
-func cleanSeries(t, v []float64) baseSeries {
-	var s baseSeries
-	for i := range t {
-		if x := v[i]; !math.IsNaN(x) && !math.IsInf(x, 0) && !math.IsNaN(t[i]) {
-			s.t = append(s.t, t[i])
-			s.v = append(s.v, x)
-		}
-	}
-	return s
-}
-
 // at interpolates linearly at time x, holding the end values outside.
 // It also returns whether x is outside, the length of the bracketing
 // interval (0 at a base reading's own time) and the index of the base
@@ -106,8 +114,8 @@ type baseGap struct {
 }
 
 // describeGaps words the gaps rover rows fall in for messages: the first
-// three in time, and how many more.
-func describeGaps(gaps []*baseGap) string {
+// three in time, and how many more; ft formats a time.
+func describeGaps(gaps []*baseGap, ft func(float64) string) string {
 	sort.Slice(gaps, func(a, b int) bool { return gaps[a].t0 < gaps[b].t0 })
 	var parts []string
 	for i, g := range gaps {
@@ -125,7 +133,7 @@ func describeGaps(gaps []*baseGap) string {
 			}
 			what = ", in " + strings.Join(names, " and ")
 		}
-		parts = append(parts, fmt.Sprintf("from %s to %s (%g s%s; %d rover %s)", fmtTime(g.t0), fmtTime(g.t1), math.Round((g.t1-g.t0)*1e3)/1e3, what, g.rows, map[bool]string{true: "reading", false: "readings"}[g.rows == 1]))
+		parts = append(parts, fmt.Sprintf("from %s to %s (%g s%s; %d rover %s)", ft(g.t0), ft(g.t1), math.Round((g.t1-g.t0)*1e3)/1e3, what, g.rows, map[bool]string{true: "reading", false: "readings"}[g.rows == 1]))
 	}
 	return strings.Join(parts, ", ")
 }
@@ -149,19 +157,58 @@ func BaseCorrectColumns(roverName string, rt []float64, rb [3][]float64, baseNam
 			return nil, fmt.Errorf("calibrate: base correction: %s: field column %d has %d rows, time has %d", baseName, k, len(bb[k]), len(bt))
 		}
 	}
-	for i := 1; i < len(bt); i++ {
-		if !(bt[i] > bt[i-1]) {
-			return nil, fmt.Errorf("calibrate: base correction: %s: row %d: time %s does not follow %s", baseName, i, fmtTime(bt[i]), fmtTime(bt[i-1]))
+	// A row repeated exactly (a common logger artefact) is left out; a
+	// time repeated with other values is refused.
+	dups, err := RepeatedBaseRows(baseName, bt, bb)
+	if err != nil {
+		return nil, err
+	}
+	skip := make([]bool, len(bt))
+	for _, i := range dups {
+		skip[i] = true
+	}
+	for i, prev := 1, 0; i < len(bt); i++ {
+		if skip[i] {
+			continue
+		}
+		if !(bt[i] > bt[prev]) {
+			return nil, fmt.Errorf("calibrate: base correction: %s: data row %d (counting from 1): time %s does not follow %s; put the base log in time order (locate --time-order any)", baseName, i+1, fmtTime(bt[i]), fmtTime(bt[prev]))
+		}
+		prev = i
+	}
+	spiked := make([]bool, len(bt))
+	for _, i := range bs.LeftOut {
+		if i >= 0 && i < len(bt) {
+			spiked[i] = true
 		}
 	}
-	var series [3]baseSeries
+	// series holds the values the correction interpolates; present the
+	// times the base station read, spikes left out included, for the gaps.
+	var series, present [3]baseSeries
 	for k := 0; k < 3; k++ {
-		series[k] = cleanSeries(bt, bb[k])
+		for i, t := range bt {
+			if skip[i] || math.IsNaN(t) {
+				continue
+			}
+			x := bb[k][i]
+			ok := !math.IsNaN(x) && !math.IsInf(x, 0)
+			if ok {
+				series[k].t = append(series[k].t, t)
+				series[k].v = append(series[k].v, x)
+			}
+			if ok || spiked[i] {
+				present[k].t = append(present[k].t, t)
+				present[k].v = append(present[k].v, 0)
+			}
+		}
 		if len(series[k].t) < 2 {
 			return nil, fmt.Errorf("calibrate: base correction: %s: fewer than two valid values in column %s", baseName, fieldNames[k])
 		}
 	}
 	rep := &BaseReport{}
+	if len(dups) > 0 {
+		rep.Warnings = append(rep.Warnings, fmt.Sprintf("base record %s repeats %d %s exactly (the same time and values), the first at %s: the repeats were left out", baseName, len(dups), map[bool]string{true: "row", false: "rows"}[len(dups) == 1], fmtTime(bt[dups[0]])))
+	}
 	switch {
 	case bs.Reference != nil:
 		rep.Reference = *bs.Reference
@@ -176,23 +223,30 @@ func BaseCorrectColumns(roverName string, rt []float64, rb [3][]float64, baseNam
 	default:
 		return nil, fmt.Errorf("calibrate: base correction: reference mode %q, want \"median\" or \"first\"", bs.RefMode)
 	}
-	// The default gap limit: five base sample intervals, at most
-	// MaxGapCeiling.
-	d := make([]float64, 0, len(series[0].t)-1)
-	for i := 1; i < len(series[0].t) && i < 10000; i++ {
-		d = append(d, series[0].t[i]-series[0].t[i-1])
+	// The default gap limit: five base sample intervals, at least
+	// MinGapLimit and at most MaxGapCeiling.
+	d := make([]float64, 0, len(present[0].t)-1)
+	for i := 1; i < len(present[0].t) && i < 10000; i++ {
+		d = append(d, present[0].t[i]-present[0].t[i-1])
 	}
 	step := median(d, nil)
-	defGap, defWhy := 5*step, fmt.Sprintf("five base sample intervals of %g s", math.Round(step*1e6)/1e6)
-	if defGap > MaxGapCeiling {
-		defGap, defWhy = MaxGapCeiling, fmt.Sprintf("the default ceiling, whatever the base's own sampling interval, here %g s", math.Round(step*1e6)/1e6)
+	ft := func(t float64) string { return fmtTimeSub(t, step < 1) }
+	stepS := math.Round(step*1e6) / 1e6
+	defGap, defWhy := 5*step, fmt.Sprintf("five base sample intervals of %g s", stepS)
+	switch {
+	case defGap > MaxGapCeiling:
+		defGap, defWhy = MaxGapCeiling, fmt.Sprintf("the default ceiling, whatever the base's own sampling interval, here %g s", stepS)
+	case defGap < MinGapLimit:
+		defGap, defWhy = MinGapLimit, fmt.Sprintf("the default, however fast the base samples, here every %g s", stepS)
 	}
 	maxGap, why := defGap, defWhy
 	switch {
 	case bs.MaxGap < 0:
 		maxGap = math.Inf(1)
-	case bs.MaxGap > maxGap:
-		maxGap, why = bs.MaxGap, "the limit allowed"
+	case bs.MaxGap > 0 && bs.MaxGap < 1.5*step:
+		maxGap, why = 1.5*step, "1.5 base sample intervals, the least limit: no reading missing"
+	case bs.MaxGap > 0 && bs.MaxGap != defGap:
+		maxGap, why = bs.MaxGap, "the limit given"
 	}
 	maxHold := bs.MaxHold
 	if maxHold == 0 {
@@ -213,7 +267,7 @@ func BaseCorrectColumns(roverName string, rt []float64, rb [3][]float64, baseNam
 	bhi := math.Min(series[0].t[len(series[0].t)-1], math.Min(series[1].t[len(series[1].t)-1], series[2].t[len(series[2].t)-1]))
 	if rhi < blo || rlo > bhi {
 		return nil, fmt.Errorf("calibrate: base correction: base record %s (%s to %s) does not overlap rover log %s (%s to %s)",
-			baseName, fmtTime(blo), fmtTime(bhi), roverName, fmtTime(rlo), fmtTime(rhi))
+			baseName, ft(blo), ft(bhi), roverName, ft(rlo), ft(rhi))
 	}
 	if maxHold >= 0 && (rlo < blo-maxHold || rhi > bhi+maxHold) {
 		far, first := 0, -1
@@ -226,7 +280,7 @@ func BaseCorrectColumns(roverName string, rt []float64, rb [3][]float64, baseNam
 			}
 		}
 		return nil, fmt.Errorf("calibrate: base correction: base record %s (%s to %s) does not cover the rover log %s (%s to %s): %d of %d readings, the first at %s, lie more than %g s outside it, where the base's nearest value held is no correction; give a base record that covers the survey, or allow the hold (locate --base-hold SECONDS)",
-			baseName, fmtTime(blo), fmtTime(bhi), roverName, fmtTime(rlo), fmtTime(rhi), far, len(rt), fmtTime(rt[first]), math.Round(maxHold*1e6)/1e6)
+			baseName, ft(blo), ft(bhi), roverName, ft(rlo), ft(rhi), far, len(rt), ft(rt[first]), math.Round(maxHold*1e6)/1e6)
 	}
 
 	// Rover rows in gaps longer than the limit are refused before any row
@@ -238,7 +292,7 @@ func BaseCorrectColumns(roverName string, rt []float64, rb [3][]float64, baseNam
 		in, wide := false, false
 		seen := map[gapKey]bool{}
 		for k := 0; k < 3; k++ {
-			_, _, g, end := series[k].at(t)
+			_, _, g, end := present[k].at(t)
 			if g > defGap {
 				wide = true
 			}
@@ -246,7 +300,7 @@ func BaseCorrectColumns(roverName string, rt []float64, rb [3][]float64, baseNam
 				continue
 			}
 			in = true
-			key := gapKey{series[k].t[end-1], series[k].t[end]}
+			key := gapKey{present[k].t[end-1], present[k].t[end]}
 			bg := long[key]
 			if bg == nil {
 				bg = &baseGap{t0: key.t0, t1: key.t1}
@@ -271,7 +325,7 @@ func BaseCorrectColumns(roverName string, rt []float64, rb [3][]float64, baseNam
 		}
 		return nil, fmt.Errorf("calibrate: base correction: base record %s has %s longer than %g s (%s) while the rover log %s was recorded: %d of %d readings, from %s to %s, fall in the %s %s. A straight line across the gap is no correction (the diurnal variation and pulsations move the field by nanotesla in minutes); give a base record without the gap, or allow interpolation across it (locate --base-hold SECONDS)",
 			baseName, map[bool]string{true: "a gap", false: "gaps"}[len(gaps) == 1], math.Round(maxGap*1e6)/1e6, why, roverName,
-			len(inLong), len(rt), fmtTime(rt[inLong[0]]), fmtTime(rt[inLong[len(inLong)-1]]), map[bool]string{true: "gap", false: "gaps"}[len(gaps) == 1], describeGaps(gaps))
+			len(inLong), len(rt), ft(rt[inLong[0]]), ft(rt[inLong[len(inLong)-1]]), map[bool]string{true: "gap", false: "gaps"}[len(gaps) == 1], describeGaps(gaps, ft))
 	}
 
 	var lo, hi [3]float64
@@ -314,9 +368,9 @@ func BaseCorrectColumns(roverName string, rt []float64, rb [3][]float64, baseNam
 	if rep.Outside > 0 {
 		rep.Warnings = append(rep.Warnings, fmt.Sprintf(
 			"base record %s (%s to %s) does not cover the rover log %s (%s to %s): %d of %d rows corrected with the nearest base value held",
-			baseName, fmtTime(blo), fmtTime(bhi), roverName, fmtTime(rlo), fmtTime(rhi), rep.Outside, len(rt)))
+			baseName, ft(blo), ft(bhi), roverName, ft(rlo), ft(rhi), rep.Outside, len(rt)))
 	}
-	if rep.InGap > 0 {
+	if rep.InGap > 0 && maxGap > defGap {
 		rep.Warnings = append(rep.Warnings, fmt.Sprintf(
 			"%d rover rows fall in gaps of base record %s longer than %g s (%s), up to %g s: interpolated across the gaps, as allowed", rep.InGap, baseName, math.Round(defGap*1e6)/1e6, defWhy, math.Round(maxGap*1e6)/1e6))
 	}
@@ -324,12 +378,56 @@ func BaseCorrectColumns(roverName string, rt []float64, rb [3][]float64, baseNam
 }
 
 // fmtTime shows Unix times as UTC and small (relative) times as seconds.
-func fmtTime(t float64) string {
+func fmtTime(t float64) string { return fmtTimeSub(t, false) }
+
+// fmtTimeSub is fmtTime, with milliseconds when sub is set (a record
+// sampled faster than once a second, whose gaps and spikes last fractions
+// of a second).
+func fmtTimeSub(t float64, sub bool) string {
 	if t > 1e8 && t < 1e11 {
+		if sub {
+			return time.UnixMilli(int64(math.Round(t * 1e3))).UTC().Format("2006-01-02T15:04:05.000Z")
+		}
 		sec, frac := math.Modf(t)
 		return time.Unix(int64(sec), int64(frac*1e9)).UTC().Format("2006-01-02T15:04:05Z")
 	}
 	return fmt.Sprintf("%g s", t)
+}
+
+// BaseRepeatError is a time repeated in a base record with other values:
+// Row (0-based, in the columns given) has the time of the row before.
+type BaseRepeatError struct {
+	Name       string
+	Row        int
+	Time       float64
+	Prev, This [3]float64
+}
+
+func (e *BaseRepeatError) Error() string {
+	return fmt.Sprintf("calibrate: base correction: %s: data row %d (counting from 1): time %s repeats the time of the row before with other values (%g, %g, %g nT against %g, %g, %g nT): a base station reads one field at a time; remove the wrong row",
+		e.Name, e.Row+1, fmtTime(e.Time), e.This[0], e.This[1], e.This[2], e.Prev[0], e.Prev[1], e.Prev[2])
+}
+
+// RepeatedBaseRows finds the rows of a base record (times bt, field
+// columns bb) that repeat the row before exactly, the same time and the
+// same values (missing values repeating missing ones): a logger artefact
+// that holds no contradiction, to be left out. A row with the time of the
+// row before and other values is a *BaseRepeatError.
+func RepeatedBaseRows(name string, bt []float64, bb [3][]float64) ([]int, error) {
+	same := func(a, b float64) bool { return a == b || math.IsNaN(a) && math.IsNaN(b) }
+	var dups []int
+	for i := 1; i < len(bt); i++ {
+		if bt[i] != bt[i-1] {
+			continue
+		}
+		if same(bb[0][i], bb[0][i-1]) && same(bb[1][i], bb[1][i-1]) && same(bb[2][i], bb[2][i-1]) {
+			dups = append(dups, i)
+			continue
+		}
+		return nil, &BaseRepeatError{Name: name, Row: i, Time: bt[i],
+			Prev: [3]float64{bb[0][i-1], bb[1][i-1], bb[2][i-1]}, This: [3]float64{bb[0][i], bb[1][i], bb[2][i]}}
+	}
+	return dups, nil
 }
 
 // BaseSpikes says what DespikeBaseColumns took out of a base record.
@@ -372,6 +470,14 @@ func DespikeBaseColumns(bt []float64, bb [3][]float64, set *DespikeSettings) (*B
 	for _, i := range rows {
 		bb[0][i], bb[1][i], bb[2][i] = math.NaN(), math.NaN(), math.NaN()
 	}
+	var d []float64
+	for i := 1; i < len(bt) && i < 10000; i++ {
+		if x := bt[i] - bt[i-1]; x > 0 {
+			d = append(d, x)
+		}
+	}
+	sub := len(d) > 0 && median(d, nil) < 1
+	fmtTime := func(t float64) string { return fmtTimeSub(t, sub) }
 	var runs []string
 	nRuns := 0
 	for a := 0; a < len(rows); {

@@ -88,13 +88,18 @@ func TestBaseGapRefusedBoulder(t *testing.T) {
 	if rep.InGap != 61 || len(rep.Warnings) != 1 || !strings.Contains(rep.Warnings[0], "61 rover rows fall in gaps of base record bou20141101vmin.min longer than 300 s") {
 		t.Errorf("in gap %d, warnings %q; want 61 and one gap warning", rep.InGap, rep.Warnings)
 	}
-	// A limit below the default does not tighten it: five minutes of
-	// one-minute data, 4 minutes taken out (a 300 s gap), pass.
+	// 4 minutes of one-minute data taken out (a 300 s gap) pass by
+	// default; a limit below the default tightens it (locate --base-hold
+	// 10, as its help says), though never below 1.5 sample intervals (90 s
+	// here): the gap is then refused.
 	bt, bb = without(s, a, a+4)
 	rb = rover()
-	rep, err = BaseCorrectColumns("kestrel-moor.csv", rt, rb, "bou20141101vmin.min", bt, bb, &BaseSettings{MaxGap: 10})
+	rep, err = BaseCorrectColumns("kestrel-moor.csv", rt, rb, "bou20141101vmin.min", bt, bb, nil)
 	if err != nil || rep.InGap != 0 || len(rep.Warnings) != 0 {
 		t.Errorf("a 300 s gap in 60 s data: err %v, in gap %d, warnings %q; want none", err, rep.InGap, rep.Warnings)
+	}
+	if _, err := BaseCorrectColumns("kestrel-moor.csv", rt, rover(), "bou20141101vmin.min", bt, bb, &BaseSettings{MaxGap: 10}); err == nil || !strings.Contains(err.Error(), "longer than 90 s (1.5 base sample intervals, the least limit") {
+		t.Errorf("a 300 s gap in 60 s data with MaxGap 10: err = %v, want it refused at 90 s", err)
 	}
 	// Five minutes out (a 360 s gap) is refused.
 	bt, bb = without(s, a, a+5)
@@ -131,12 +136,12 @@ func TestBaseGapCeiling(t *testing.T) {
 func TestBaseGapOneComponent(t *testing.T) {
 	var bt []float64
 	var bb [3][]float64
-	for i := range 100 {
+	for i := range 200 {
 		bt = append(bt, float64(i))
 		bb[0] = append(bb[0], 1500)
 		bb[1] = append(bb[1], 20800)
 		z := -47500.0
-		if i >= 40 && i < 60 {
+		if i >= 40 && i < 110 {
 			z = math.NaN()
 		}
 		bb[2] = append(bb[2], z)
@@ -144,11 +149,11 @@ func TestBaseGapOneComponent(t *testing.T) {
 	zero := func(n int) [3][]float64 {
 		return [3][]float64{make([]float64, n), make([]float64, n), make([]float64, n)}
 	}
-	_, err := BaseCorrectColumns("r.csv", []float64{10, 45.5, 50, 70}, zero(4), "b.csv", bt, bb, nil)
-	if err == nil || !strings.Contains(err.Error(), "from 39 s to 60 s (21 s, in bz; 2 rover readings)") {
+	_, err := BaseCorrectColumns("r.csv", []float64{10, 45.5, 50, 130}, zero(4), "b.csv", bt, bb, nil)
+	if err == nil || !strings.Contains(err.Error(), "from 39 s to 110 s (71 s, in bz; 2 rover readings)") {
 		t.Errorf("err = %v, want the bz gap named", err)
 	}
-	if _, err := BaseCorrectColumns("r.csv", []float64{10, 39, 60, 70}, zero(4), "b.csv", bt, bb, nil); err != nil {
+	if _, err := BaseCorrectColumns("r.csv", []float64{10, 39, 110, 120}, zero(4), "b.csv", bt, bb, nil); err != nil {
 		t.Errorf("readings at the gap's ends: %v", err)
 	}
 }

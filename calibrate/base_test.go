@@ -153,8 +153,8 @@ func TestBaseCorrectColumnsSynthetic(t *testing.T) {
 	}
 	// Gaps longer than the default limit: TestBaseGap* in
 	// base_fxbase_test.go.
-	if _, err := BaseCorrectColumns("rover", rt, rb, "base.csv", []float64{0, 10, 10, 30, 40}, bb, nil); err == nil || !strings.Contains(err.Error(), "base.csv: row 2") {
-		t.Errorf("err = %v, want one naming base.csv row 2", err)
+	if _, err := BaseCorrectColumns("rover", rt, rb, "base.csv", []float64{0, 10, 10, 30, 40}, bb, nil); err == nil || !strings.Contains(err.Error(), "base.csv: data row 3 (counting from 1)") {
+		t.Errorf("err = %v, want one naming base.csv data row 3", err)
 	}
 }
 

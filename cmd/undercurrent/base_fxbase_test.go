@@ -97,7 +97,7 @@ func TestLocateBaseGapRefused(t *testing.T) {
 	hole := filepath.Join(dir, "base-hole.csv")
 	writeBaseCSV(t, hole, base, 1, func(i int) bool { return base.Time[i] < t0-1 || base.Time[i] > t1+1 })
 	code, _, stderr := cli(t, "locate", "--group-by", "group", "--base", hole, survey)
-	if code != 1 || !strings.Contains(stderr, "base record "+hole+" has a gap longer than 5 s (five base sample intervals of 1 s)") ||
+	if code != 1 || !strings.Contains(stderr, "base record "+hole+" has a gap longer than 60 s (the default, however fast the base samples, here every 1 s)") ||
 		!strings.Contains(stderr, fmt.Sprintf("%d of %d readings", s.Len(), s.Len())) || !strings.Contains(stderr, "--base-hold") {
 		t.Errorf("exit %d, stderr:\n%s\nwant exit 1 and the gap named", code, stderr)
 	}

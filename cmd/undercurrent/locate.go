@@ -1,6 +1,7 @@
 package main
 
 import (
+	"bufio"
 	"context"
 	"errors"
 	"fmt"
@@ -34,6 +35,7 @@ type locateOptions struct {
 	baseHold     float64
 	baseHoldSet  bool // --base-hold given (0 then means no hold at all)
 	baseUnits    []string
+	baseColumns  []string
 	freq         float64
 	window       float64
 	mainsText    string
@@ -79,7 +81,8 @@ var resultFiles = []string{report.FileJSON, report.FileCSV, report.FileFindings,
 func (o *locateOptions) setFlags(fs *pflag.FlagSet) {
 	fs.StringVar(&o.calibration, "calibration", "", "apply the sensor calibration in `CAL.json` (from undercurrent calibrate)")
 	fs.StringVar(&o.base, "base", "", "subtract the diurnal variation recorded by the base station log `BASE` (any log format, IAGA-2002 too)")
-	fs.Float64Var(&o.baseHold, "base-hold", 0, "correct survey readings up to `S` seconds before or after the base log with its nearest value held, and interpolate the base across its gaps up to S seconds long (default for both: five base sample intervals, at most 300 s; 0: no hold at all; readings further out, or in a longer gap, are refused, since a held value or a straight line across the gap is no correction)")
+	fs.Float64Var(&o.baseHold, "base-hold", 0, "correct survey readings up to `S` seconds before or after the base log with its nearest value held, and interpolate the base across its gaps up to S seconds long, S above or below the default (default for both: five base sample intervals, at least 60 s and at most 300 s; 0: no hold at all, and no reading missing from the base; readings further out, or in a longer gap, are refused, since a held value or a straight line across the gap is no correction)")
+	fs.StringSliceVar(&o.baseColumns, "base-column", nil, "name the base log's columns, `CANON=NAME` as --column does for the survey logs (time=Time,bx=magX,by=magY,bz=magZ); not for an IAGA-2002 base")
 	fs.StringSliceVar(&o.baseUnits, "base-unit", nil, "units of the base log's columns, `CANON=UNIT` as --unit gives them for the survey logs (bx=uT,by=uT,bz=uT); a base log whose field is as steady as the Earth's but whose median lies outside the Earth's field band in nT is refused without it")
 	fs.Float64Var(&o.freq, "freq", 0, "demodulate the AC field at `HZ` (50, 60, 16.7, 512...) and fit RMS currents with phase; the field's own frequency is then estimated from the log, and if it is off (a grid at 50.1 Hz) the log is demodulated at the estimate, with a warning saying so (too far off, it refuses and names the frequency found); without --freq the DC field is fitted (no frequency is estimated and AC is not looked for)")
 	fs.StringVar(&o.mainsText, "mains", "50,60", "with --freq at another frequency than the mains (an injected tracer, 16.7 Hz), fit the mains `HZ` (50, 60, both as 50,60, or none) and their odd harmonics alongside in every window, so that a strong mains field changing as the sensor walks does not leak into the signal as noise")
@@ -254,7 +257,8 @@ The input flags (--column, --unit, --delimiter, --header, --comment,
 reads logs, apply to the survey logs. Of them, only --time-order,
 --allow-unterminated and --iaga-baseline-frame apply to the base log
 (--base) too; it comes from another instrument, usually in another format,
-so it is read with its own column names, units and layout, and with
+so it is read with its own column names (--base-column), units
+(--base-unit) and layout, and with
 missing values allowed (its gaps are reported). A base log whose time goes
 backwards (with --time-order any) is put in time order, with a warning.
 Each survey log's median |B| is checked against the Earth's field (about
@@ -497,6 +501,9 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 	if len(o.baseUnits) > 0 && o.base == "" {
 		return nil, usageErrorf("--base-unit needs --base")
 	}
+	if len(o.baseColumns) > 0 && o.base == "" {
+		return nil, usageErrorf("--base-column needs --base")
+	}
 	var cal *calibrate.Calibration
 	if o.calibration != "" {
 		var err error
@@ -510,6 +517,7 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		return nil, err
 	}
 	var base *ingest.Samples
+	var baseLeftOut []int // base rows left out as spikes
 	if o.base != "" {
 		var err error
 		bopts := o.baseOpts
@@ -520,6 +528,9 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			return nil, err
 		}
 		if base, err = readSamples(ctx, o.base, bopts...); err != nil {
+			return nil, baseReadError(err)
+		}
+		if err := checkBaseLog(o, base); err != nil {
 			return nil, err
 		}
 		doc.Inputs = append(doc.Inputs, fileInput("base", o.base, base.Len()))
@@ -538,16 +549,26 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		}
 		// The base correction interpolates in time: a base log read with
 		// --time-order any or per-group is put in time order first.
-		if back, _ := sortByTime(base); back > 0 {
+		back, orig := sortByTime(base)
+		if back > 0 {
 			sv.warnings = append(sv.warnings, fmt.Sprintf("%s: time goes backwards at %s (--time-order %s): the base log was put in time order for the base correction", o.base, plural(back, "row"), o.read.timeOrder))
 		}
-		// A spike at the base is subtracted from every survey reading
-		// taken at that moment: it is always looked for, and left out.
-		if w, err := despikeBase(o, base); err != nil {
+		// A row repeated exactly is left out; a time repeated with other
+		// values is refused, naming its file lines.
+		if w, err := dropRepeatedBaseRows(o.base, base, orig); err != nil {
 			return nil, err
 		} else if w != "" {
 			sv.warnings = append(sv.warnings, w)
 		}
+		// A spike at the base is subtracted from every survey reading
+		// taken at that moment: it is always looked for, and left out.
+		w, spiked, err := despikeBase(o, base)
+		if err != nil {
+			return nil, err
+		} else if w != "" {
+			sv.warnings = append(sv.warnings, w)
+		}
+		baseLeftOut = spiked
 	}
 	opts := append(append([]ingest.Option(nil), o.readOpts...), o.coil.readOptions()...)
 	if o.groupBy != "" && o.groupBy != ingest.ColGroup {
@@ -636,14 +657,19 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			}
 		}
 		if base != nil {
-			hold := 0.0 // the default: five base sample intervals, at most 300 s
+			hold := 0.0 // the default: five base sample intervals, 60 to 300 s
 			if o.baseHoldSet {
 				hold = math.Max(o.baseHold, 1e-9) // 0: none at all
 			}
-			// --base-hold S allows gaps in the base log up to S seconds
-			// too; the default limit is the same as the hold's.
-			rep, err := calibrate.BaseCorrect(s, base, &calibrate.BaseSettings{MaxHold: hold, MaxGap: o.baseHold})
+			// --base-hold S sets the limit on gaps in the base log too,
+			// above or below the default (the same as the hold's); 0
+			// allows no reading missing. Readings left out as spikes are
+			// no gap.
+			rep, err := calibrate.BaseCorrect(s, base, &calibrate.BaseSettings{MaxHold: hold, MaxGap: hold, LeftOut: baseLeftOut})
 			if err != nil {
+				if len(baseLeftOut) > 0 {
+					err = fmt.Errorf("%w (%s of the base log were left out as spikes, see the warning below; they are readings, not gaps)", err, plural(len(baseLeftOut), "reading"))
+				}
 				return nil, err
 			}
 			baseNotes = append(baseNotes, baseSummary(path, rep))
@@ -690,10 +716,31 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 // the survey logs is refused: it made every departure the survey's own
 // anomaly, and the run reported "no anomaly".
 func baseUnitOptions(o *locateOptions, logs []string, bopts []ingest.Option) ([]ingest.Option, error) {
+	var baseSum string
 	for _, path := range logs {
 		if sameFile(o.base, path) {
 			return nil, usageErrorf("--base %s is the survey log %s itself: the base log is the record of a second magnetometer left in one place during the survey", o.base, path)
 		}
+		// A copy of a survey log (the same bytes under another name):
+		// the file sizes first, the SHA-256 (as results.json records the
+		// inputs) only when they agree.
+		bi, err1 := os.Stat(o.base)
+		li, err2 := os.Stat(path)
+		if err1 != nil || err2 != nil || bi.Size() != li.Size() {
+			continue
+		}
+		if baseSum == "" {
+			baseSum = fileInput("base", o.base, 0).SHA256
+		}
+		if sum := fileInput("survey", path, 0).SHA256; baseSum != "" && sum == baseSum {
+			return nil, usageErrorf("--base %s has the same content as the survey log %s (SHA-256 %s): it is a copy of it, and would take the survey's own anomaly away as the diurnal variation; the base log is the record of a second magnetometer left in one place during the survey", o.base, path, sum[:12])
+		}
+	}
+	if len(o.baseColumns) > 0 {
+		if err := checkOption("--base-column", "column ", ingest.WithColumns(o.baseColumns...)); err != nil {
+			return nil, err
+		}
+		bopts = append(append([]ingest.Option(nil), bopts...), ingest.WithColumns(o.baseColumns...))
 	}
 	if len(o.baseUnits) == 0 {
 		return bopts, nil
@@ -780,17 +827,203 @@ func checkBaseUnits(ctx context.Context, o *locateOptions, base *ingest.Samples,
 // threshold is spikeSigmas robust standard deviations, the one of the
 // survey's spike warning, or --despike's when it is given. It returns the
 // warning naming the times left out.
-func despikeBase(o *locateOptions, base *ingest.Samples) (string, error) {
+func despikeBase(o *locateOptions, base *ingest.Samples) (string, []int, error) {
 	k := spikeSigmas
 	if o.despike {
 		k = 5 // calibrate.Despike's default, which --despike uses
 	}
 	sp, err := calibrate.DespikeBaseColumns(base.Time, [3][]float64{base.Bx, base.By, base.Bz}, &calibrate.DespikeSettings{Threshold: float64(k)})
 	if err != nil || sp == nil {
+		return "", nil, err
+	}
+	return fmt.Sprintf("%s: %s of the base log depart from the running median of their neighbours by more than %d robust standard deviations, at %s: spikes at the base station, which would be subtracted from every survey reading taken then; they were left out and the base interpolated across them (they are readings, not a gap in the record)",
+		o.base, plural(len(sp.Rows), "reading"), k, sp.Runs), sp.Rows, nil
+}
+
+// baseReadError words a read error of the base log: the survey logs'
+// --column and --unit do not apply to it, --base-column and --base-unit
+// do.
+func baseReadError(err error) error {
+	if isInterrupt(err) {
+		return err
+	}
+	msg := err.Error()
+	if !strings.Contains(msg, "--column ") && !strings.Contains(msg, "--unit ") {
+		return err
+	}
+	msg = strings.ReplaceAll(strings.ReplaceAll(strings.TrimPrefix(msg, "ingest: "), "--column ", "--base-column "), "--unit ", "--base-unit ")
+	return fmt.Errorf("%s (this is the base log, --base: --column and --unit apply to the survey logs only)", msg)
+}
+
+// checkBaseLog checks what was read as the base log: the base flags that
+// do not apply to an IAGA-2002 file, an instrument-frame (UVW) record,
+// and positions that move (a base station stands still).
+func checkBaseLog(o *locateOptions, base *ingest.Samples) error {
+	if base.Meta["elements"] != "" {
+		for _, f := range []struct {
+			name string
+			v    []string
+		}{{"--base-unit", o.baseUnits}, {"--base-column", o.baseColumns}} {
+			if len(f.v) > 0 {
+				return usageErrorf("%s does not apply to %s: it is an IAGA-2002 file, whose format fixes its columns and their unit (nT)", f.name, o.base)
+			}
+		}
+	}
+	if base.Frame != ingest.FrameENU {
+		what := "in the sensor frame"
+		if base.Meta["elements"] != "" {
+			what = fmt.Sprintf("an IAGA-2002 record of elements %s, the instrument's own axes", base.Meta["elements"])
+		}
+		return fmt.Errorf("base record %s is %s, not east-north-up, and holds nothing to turn it with: a base log must give the field in geographic (or geomagnetic) axes; use the observatory's XYZ, HDZ or HEZ variation data for the same days instead", o.base, what)
+	}
+	for _, c := range []struct {
+		name string
+		v    []float64
+	}{{"x", base.X}, {"y", base.Y}} {
+		var v []float64
+		for _, x := range c.v {
+			if !math.IsNaN(x) && !math.IsInf(x, 0) {
+				v = append(v, x)
+			}
+		}
+		if len(v) < 2 {
+			continue
+		}
+		sort.Float64s(v)
+		// The 5th to 95th percentile, so that a glitch in a position
+		// column does not refuse a base log.
+		lo, hi := v[len(v)/20], v[len(v)-1-len(v)/20]
+		if hi-lo > 1 {
+			return fmt.Errorf("%s: the base log's positions move: %s runs from %.4g to %.4g m (5th to 95th percentile), more than 1 m: a base station stands still during the survey, so this is not a base log (a survey log given as --base?); give the log of the magnetometer left in one place", o.base, c.name, lo, hi)
+		}
+	}
+	return nil
+}
+
+// dropRepeatedBaseRows leaves out the rows of base (in time order; orig
+// gives each row's index in the file) that repeat the row before exactly
+// and returns the warning saying so. A time repeated with other values is
+// an error naming the file lines of both rows.
+func dropRepeatedBaseRows(path string, base *ingest.Samples, orig []int) (string, error) {
+	dups, err := calibrate.RepeatedBaseRows(path, base.Time, [3][]float64{base.Bx, base.By, base.Bz})
+	var re *calibrate.BaseRepeatError
+	if errors.As(err, &re) {
+		where := fmt.Sprintf("data rows %d and %d (counting from 1)", orig[re.Row-1]+1, orig[re.Row]+1)
+		lines := baseRowLines(path, []int{orig[re.Row-1], orig[re.Row]})
+		at := path
+		if lines != nil {
+			at = fmt.Sprintf("%s:%d", path, lines[1])
+			where = fmt.Sprintf("lines %d and %d", lines[0], lines[1])
+		}
+		return "", fmt.Errorf("%s: the base log repeats time %s on %s with other values (%g, %g, %g nT, then %g, %g, %g nT): a base station reads one field at a time; remove the wrong row",
+			at, fmtBaseTime(re.Time), where, re.Prev[0], re.Prev[1], re.Prev[2], re.This[0], re.This[1], re.This[2])
+	}
+	if err != nil || len(dups) == 0 {
 		return "", err
 	}
-	return fmt.Sprintf("%s: %s of the base log depart from the running median of their neighbours by more than %d robust standard deviations, at %s: spikes at the base station, which would be subtracted from every survey reading taken then; they were left out and the base interpolated across them",
-		o.base, plural(len(sp.Rows), "reading"), k, sp.Runs), nil
+	first := fmt.Sprintf("data row %d (counting from 1)", orig[dups[0]]+1)
+	if lines := baseRowLines(path, []int{orig[dups[0]]}); lines != nil {
+		first = fmt.Sprintf("line %d", lines[0])
+	}
+	keep := make([]bool, base.Len())
+	for i := range keep {
+		keep[i] = true
+	}
+	for _, i := range dups {
+		keep[i] = false
+	}
+	for _, c := range []*[]float64{&base.Time, &base.Bx, &base.By, &base.Bz, &base.X, &base.Y, &base.Z, &base.F, &base.Temp} {
+		if *c == nil {
+			continue
+		}
+		v := (*c)[:0]
+		for i, x := range *c {
+			if keep[i] {
+				v = append(v, x)
+			}
+		}
+		*c = v
+	}
+	if base.Group != nil {
+		v := base.Group[:0]
+		for i, x := range base.Group {
+			if keep[i] {
+				v = append(v, x)
+			}
+		}
+		base.Group = v
+	}
+	return fmt.Sprintf("%s: %s of the base log %s the row before exactly (the same time and values), the first on %s: the %s left out", path, plural(len(dups), "row"), map[bool]string{true: "repeats", false: "repeat"}[len(dups) == 1], first, map[bool]string{true: "repeat was", false: "repeats were"}[len(dups) == 1]), nil
+}
+
+// fmtBaseTime shows a Unix time as UTC to the millisecond, other times in
+// seconds.
+func fmtBaseTime(t float64) string {
+	if t > 1e8 && t < 1e11 {
+		return time.UnixMilli(int64(math.Round(t * 1e3))).UTC().Format("2006-01-02T15:04:05.000Z")
+	}
+	return fmt.Sprintf("%g s", t)
+}
+
+// baseRowLines returns the file lines (counting from 1) of data rows
+// (0-based, in file order) of a text base log, or nil for a binary one
+// (Arrow, Parquet) or when the rows cannot be found. A CSV file's data
+// rows follow its header line, past blank and "#" comment lines (how
+// ingest reads a base log, which takes no --header or --comment); an
+// IAGA-2002 file's are the lines not ending in "|".
+func baseRowLines(path string, rows []int) []int {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil
+	}
+	defer f.Close()
+	br := bufio.NewReader(f)
+	head, _ := br.Peek(512)
+	format := ingest.DetectFormat(head)
+	if format != ingest.FormatCSV && format != ingest.FormatIAGA {
+		return nil
+	}
+	want := map[int]int{}
+	for _, r := range rows {
+		want[r] = 0
+	}
+	sc := bufio.NewScanner(br)
+	sc.Buffer(make([]byte, 0, 1<<16), 1<<24)
+	line, row, header := 0, -1, format == ingest.FormatIAGA
+	found := 0
+	for sc.Scan() && found < len(want) {
+		line++
+		t := strings.TrimSpace(sc.Text())
+		if t == "" {
+			continue
+		}
+		if format == ingest.FormatIAGA {
+			if strings.HasSuffix(t, "|") {
+				continue
+			}
+		} else {
+			if strings.HasPrefix(t, "#") {
+				continue
+			}
+			if !header {
+				header = true
+				continue
+			}
+		}
+		row++
+		if _, ok := want[row]; ok {
+			want[row] = line
+			found++
+		}
+	}
+	if found < len(want) {
+		return nil
+	}
+	out := make([]int, len(rows))
+	for i, r := range rows {
+		out[i] = want[r]
+	}
+	return out
 }
 
 // nedToENUCalibration returns c turned from a sensor whose x, y, z axes
