@@ -36,9 +36,16 @@
 //
 // A spin log that does not turn the sensor enough cannot fix the ellipsoid.
 // CheckCoverage looks at unit directions of the readings about a rough
-// centre: the eigenvalues of their scatter matrix (each 1/3 for even
-// coverage; near zero when the sensor was turned about one axis only) and
-// the fraction of readings in each of the six caps around ±x, ±y, ±z.
+// centre (trimmed of each axis's extreme 5%, so that one glitch does not
+// move it): the eigenvalues of their scatter matrix (each 1/3 for even
+// coverage; near zero when the sensor was turned about one axis only,
+// refused) and the fraction of readings in each of the six caps around ±x,
+// ±y, ±z (a sparse cap is only a warning). What decides is whether the fit
+// determines every parameter: FitEllipsoid refuses a spin whose offset or
+// matrix terms it knows worse than 0.2% of the field (a spin turned about
+// two axes only leaves one matrix term free), and leaves out saturated
+// readings (an axis repeating its extreme, lying inside the fitted
+// ellipsoid) and spikes.
 //
 // The flip method (fluxgate observatory practice) reads the field at 0 and
 // 180 degrees of rotation about one axis: the two perpendicular components
