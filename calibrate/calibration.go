@@ -162,6 +162,10 @@ func (c *Calibration) Summary() string {
 		fmt.Fprintf(&b, " from %s", strings.Join(names, ", "))
 	}
 	fmt.Fprintf(&b, ": offset (%.1f, %.1f, %.1f) nT", c.Offset[0], c.Offset[1], c.Offset[2])
+	if len(c.Undetermined) > 0 {
+		// A flip pair leaves its turning axis's offset unmeasured, at 0.
+		fmt.Fprintf(&b, " (%s not determined, left at 0)", strings.Join(c.Undetermined, ", "))
+	}
 	if c.Before != nil && c.After != nil {
 		fmt.Fprintf(&b, ", |B| spread %.2f -> %.2f nT", c.Before.Std, c.After.Std)
 	}

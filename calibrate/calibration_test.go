@@ -187,6 +187,11 @@ func TestFlipAndZeroOffsets(t *testing.T) {
 	if len(c.Undetermined) != 1 || c.Undetermined[0] != "z" {
 		t.Errorf("offset_undetermined %q, want [z]", c.Undetermined)
 	}
+	// So does the one-line summary a survey's report carries: a 0.0 there
+	// read as a measured offset (found in review).
+	if sum := c.Summary(); !strings.Contains(sum, "(z not determined, left at 0)") {
+		t.Errorf("summary %q does not say z was not determined", sum)
+	}
 	if _, err := FlipOffset(r0, nil, 2); err == nil {
 		t.Error("empty 180 degree log: want an error")
 	}

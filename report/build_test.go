@@ -198,8 +198,19 @@ func TestBuildAC(t *testing.T) {
 	if err := WriteHTML(&buf, d); err != nil {
 		t.Fatal(err)
 	}
-	if !strings.Contains(buf.String(), "<th>Phase (°)</th>") || !strings.Contains(buf.String(), "AC at 2000 Hz") {
+	if !strings.Contains(buf.String(), "<th>Phase (°)</th>") || !strings.Contains(buf.String(), "AC at 2000 Hz, 0.5 s windows") {
 		t.Error("AC report lacks the phase column or the frequency")
+	}
+	// A frequency estimated from a log is not a round number: the report
+	// gives it to 0.0001 Hz and the window to 0.1 ms, as the console does
+	// (it printed 50.001367977717294 Hz and 0.09999726411941788 s).
+	d.Signal.FrequencyHz, d.Signal.WindowS = 50.001367977717294, 0.09999726411941788
+	buf.Reset()
+	if err := WriteHTML(&buf, d); err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(buf.String(), "AC at 50.0014 Hz, 0.1 s windows") {
+		t.Error("the report's signal line does not round an estimated frequency and window")
 	}
 }
 

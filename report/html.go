@@ -124,7 +124,12 @@ func newView(d *Document) (*view, error) {
 	}
 	v.SignalText = "DC field"
 	if d.Signal.Mode == SignalAC {
-		v.SignalText = fmt.Sprintf("AC at %g Hz, %g s windows; currents are RMS", d.Signal.FrequencyHz, d.Signal.WindowS)
+		// An estimated frequency and its window are not round numbers:
+		// four decimals of a hertz and a millisecond's precision, as the
+		// console gives them.
+		v.SignalText = fmt.Sprintf("AC at %s Hz, %s s windows; currents are RMS",
+			strconv.FormatFloat(math.Round(d.Signal.FrequencyHz*1e4)/1e4, 'f', -1, 64),
+			strconv.FormatFloat(math.Round(d.Signal.WindowS*1e4)/1e4, 'f', -1, 64))
 		if len(d.Signal.NuisanceHz) > 0 {
 			hz := make([]string, len(d.Signal.NuisanceHz))
 			for i, f := range d.Signal.NuisanceHz {

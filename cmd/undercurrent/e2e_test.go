@@ -577,6 +577,22 @@ func TestDemo(t *testing.T) {
 				if v := f.Values[0]; v.Name != "step" || !within(v.Value, 33-42, v.Sigma) {
 					t.Errorf("earth fault sized %+v, want -9 A within %d sigma: %s", v, kSigma, f.Message)
 				}
+				// And located: most likely at 112.5 m within its sigma's
+				// reach. A rule that merged steps touching the bend at
+				// T19 into one across it dropped the location (found in
+				// review).
+				located := false
+				for _, v := range f.Values {
+					if v.Name == "location (chainage)" {
+						located = true
+						if !within(v.Value, 112.5, v.Sigma) {
+							t.Errorf("earth fault located at %.2f ± %.2f m, want 112.5 m within %d sigma", v.Value, v.Sigma, kSigma)
+						}
+					}
+				}
+				if !located {
+					t.Errorf("earth fault not located: %s", f.Message)
+				}
 			} else {
 				t.Errorf("a step where there is none: %s", f.Message)
 			}
