@@ -58,6 +58,19 @@ func steps(ps []Placed, set *Settings, tau, widen float64) (out []Finding, notes
 		if tau <= 0 {
 			return
 		}
+		// A scatter negligible beside the stations' own sigmas (under 1%
+		// of their median) changes nothing: said, it read as a real
+		// correction ("0.000000014 A ... widened 5.1 times" beside
+		// sigmas of ±1.1 A; found in review).
+		var sig []float64
+		for _, p := range usable(ps) {
+			if p.CurrentSigma > 0 {
+				sig = append(sig, p.CurrentSigma)
+			}
+		}
+		if len(sig) > 0 && tau < 0.01*medianOf(sig) {
+			return
+		}
 		note := ""
 		if widen > 1 {
 			note = fmt.Sprintf(" (widened %.2g times for the few stations it is estimated from)", widen)
