@@ -14,9 +14,7 @@ import (
 // nothing.
 func TestCalibrateRefusesFrameNED(t *testing.T) {
 	dir := t.TempDir()
-	_, path := scenario(t, "kestrel-moor-spin.toml")
-	spin := filepath.Join(dir, "spin.csv")
-	mustCLI(t, "simulate", path, "-o", spin)
+	spin := spinLog(t, dir)
 	out := filepath.Join(dir, "cal.json")
 	code, _, stderr := cli(t, "calibrate", "--spin", spin, "--frame", "ned", "-o", out)
 	if code != 2 || !strings.Contains(stderr, "--frame ned: a calibration is made in the sensor's own axes") {

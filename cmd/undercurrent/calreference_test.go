@@ -17,9 +17,7 @@ import (
 // accepted.
 func TestCalibrateReferenceChecked(t *testing.T) {
 	dir := t.TempDir()
-	_, path := scenario(t, "kestrel-moor-spin.toml")
-	spin := filepath.Join(dir, "spin.csv")
-	mustCLI(t, "simulate", path, "-o", spin)
+	spin := spinLog(t, dir)
 	out := filepath.Join(dir, "cal.json")
 	for _, c := range []struct{ ref, want string }{
 		{"5009.5", "the Earth's field at the surface is 20000-70000 nT"},

@@ -46,13 +46,7 @@ current_a = 0.25
 // must follow the traverses, every sound current must be the pipe's
 // 0.25 A (within four sigmas) and no step reported.
 func TestLocateFailedStationKeepsOut(t *testing.T) {
-	dir := t.TempDir()
-	scen := filepath.Join(dir, "weak.toml")
-	if err := os.WriteFile(scen, []byte(weakPipe), 0o644); err != nil {
-		t.Fatal(err)
-	}
-	log := filepath.Join(dir, "weak.csv")
-	mustCLI(t, "simulate", scen, "-o", log)
+	log := simulateText(t, t.TempDir(), "weak", weakPipe, ".csv")
 	doc := locateDoc(t, "--group-by", "group", "--reference-z", "0", log)
 	failed := 0
 	for _, g := range doc.Groups {
@@ -82,4 +76,27 @@ func TestLocateFailedStationKeepsOut(t *testing.T) {
 			t.Errorf("false finding: %s", f.Message)
 		}
 	}
+}
+
+// simulateText writes the scenario text as dir/name.toml, simulates it into
+// dir/name+ext with the CLI and returns the log's path.
+func simulateText(t *testing.T, dir, name, text, ext string) string {
+	t.Helper()
+	scen := filepath.Join(dir, name+".toml")
+	if err := os.WriteFile(scen, []byte(text), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	log := filepath.Join(dir, name+ext)
+	mustCLI(t, "simulate", scen, "-o", log)
+	return log
+}
+
+// spinLog simulates the walk-through's spin (kestrel-moor-spin.toml) into
+// dir/spin.csv and returns its path.
+func spinLog(t *testing.T, dir string) string {
+	t.Helper()
+	_, path := scenario(t, "kestrel-moor-spin.toml")
+	spin := filepath.Join(dir, "spin.csv")
+	mustCLI(t, "simulate", path, "-o", spin)
+	return spin
 }

@@ -26,9 +26,7 @@ func readOrFail(t *testing.T, path string) []byte {
 // the calibration over the spin log it had just recorded the checksum of.
 func TestCalibrateOutputNotInput(t *testing.T) {
 	dir := t.TempDir()
-	_, path := scenario(t, "kestrel-moor-spin.toml")
-	spin := filepath.Join(dir, "spin.csv")
-	mustCLI(t, "simulate", path, "-o", spin)
+	spin := spinLog(t, dir)
 	survey := filepath.Join(dir, "survey.csv")
 	if err := os.WriteFile(survey, readOrFail(t, spin), 0o644); err != nil {
 		t.Fatal(err)

@@ -54,12 +54,7 @@ func TestLocateRampFarFromEstimate(t *testing.T) {
 	dir := t.TempDir()
 	var exactRMS float64
 	for _, grid := range []string{"50.0", "50.006"} {
-		scen := filepath.Join(dir, "gorse-"+grid+".toml")
-		if err := os.WriteFile(scen, []byte(strings.Replace(gorseOffCentre, "GRID", grid, 1)), 0o644); err != nil {
-			t.Fatal(err)
-		}
-		log := filepath.Join(dir, "gorse-"+grid+".arrows")
-		mustCLI(t, "simulate", scen, "-o", log)
+		log := simulateText(t, dir, "gorse-"+grid, strings.Replace(gorseOffCentre, "GRID", grid, 1), ".arrows")
 		doc := locateDoc(t, "--freq", "50", "--group-by", "group", "--reference-z", "0", log)
 		for _, g := range doc.Groups {
 			if len(g.Sources) != 1 {

@@ -397,17 +397,23 @@ func (w *assetWorker) checkSilence(now time.Time) error {
 	return w.publishAlarm(al, w.msgID(idx)+"/"+al.Kind+"/"+since)
 }
 
+// message is a JSON message on subject with the asset's revision, when it
+// has one, in its headers.
+func (w *assetWorker) message(subject string, data []byte) *nats.Msg {
+	m := nats.NewMsg(subject)
+	m.Data = data
+	m.Header.Set(broker.HeaderContentType, broker.ContentJSON)
+	if w.ck.Revision > 0 {
+		m.Header.Set(HeaderRevision, strconv.Itoa(w.ck.Revision))
+	}
+	return m
+}
+
 // publishAlarm publishes al on its asset's alarm subject with the message
 // ID id (the broker drops a repeat) and counts it unless it was a repeat.
 func (w *assetWorker) publishAlarm(al Alarm, id string) error {
 	ad, _ := json.Marshal(al)
-	am := nats.NewMsg(broker.AlarmSubject(w.asset.Name, al.Kind))
-	am.Data = ad
-	am.Header.Set(broker.HeaderContentType, broker.ContentJSON)
-	if w.ck.Revision > 0 {
-		am.Header.Set(HeaderRevision, strconv.Itoa(w.ck.Revision))
-	}
-	ack, err := w.svc.publish(am, id)
+	ack, err := w.svc.publish(w.message(broker.AlarmSubject(w.asset.Name, al.Kind), ad), id)
 	if err != nil {
 		return err
 	}
@@ -562,13 +568,7 @@ func (w *assetWorker) publishWindow(win *window, r *reduced) error {
 		return fmt.Errorf("live: asset %s: encode estimate: %w", w.asset.Name, err)
 	}
 	id := w.msgID(win.Index)
-	msg := nats.NewMsg(broker.EstimateSubject(w.asset.Name))
-	msg.Data = data
-	msg.Header.Set(broker.HeaderContentType, broker.ContentJSON)
-	if w.ck.Revision > 0 {
-		msg.Header.Set(HeaderRevision, strconv.Itoa(w.ck.Revision))
-	}
-	ack, err := w.svc.publish(msg, id)
+	ack, err := w.svc.publish(w.message(broker.EstimateSubject(w.asset.Name), data), id)
 	if err != nil {
 		return err
 	}
