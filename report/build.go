@@ -70,7 +70,8 @@ type BuildSettings struct {
 	// noise estimates is used when there are at least three groups.
 	Noise float64
 	// MeasuredNoise is the noise of the fitted values measured apart from
-	// the fits, nT (for AC, the windows' own sine-fit residuals); 0 when not
+	// the fits, nT (for AC, the windows' own sine-fit residuals; for DC, the
+	// second differences of successive readings); 0 when not
 	// measured. With Noise 0 the yardstick for a poor fit is the median of
 	// the groups' own estimates, which a misfit most groups share raises to
 	// itself; MeasuredNoise lets Build warn of that (sharedMisfit).

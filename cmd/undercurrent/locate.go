@@ -1340,14 +1340,19 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 			StepK:        o.stepK,
 			MinStep:      minStepFraction(o.minStep),
 			Noise:        sv.fitNoise(o.noise),
-			// AC windows measure their own noise: the yardstick for a
-			// poor fit when --noise is not given.
-			MeasuredNoise: medianOf(sv.windowSigma),
+			// AC windows measure their own noise, and DC readings
+			// theirs from second differences (dcnoise.go): the
+			// yardstick for a misfit every group shares when --noise
+			// is not given.
+			MeasuredNoise: medianOf(sv.windowSigma) + dcMeasuredNoise(sv),
 		})
 	})
 	if err != nil {
 		return nil, err
 	}
+	// Build puts a misfit every group shares first; an alert that names a
+	// cause (spikes left in, a route fitted as one line) still leads.
+	doc.Warnings = alertsFirst(doc.Warnings, alerts)
 	if err := ctx.Err(); err != nil {
 		return nil, err
 	}

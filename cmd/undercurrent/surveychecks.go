@@ -182,3 +182,21 @@ func leadWarnings(alerts, rest []string) []string {
 	out := append([]string(nil), alerts...)
 	return append(out, rest...)
 }
+
+// alertsFirst returns warnings with those that are among alerts moved to
+// the front, each part in its own order.
+func alertsFirst(warnings, alerts []string) []string {
+	is := make(map[string]bool, len(alerts))
+	for _, a := range alerts {
+		is[a] = true
+	}
+	var lead, rest []string
+	for _, w := range warnings {
+		if is[w] {
+			lead = append(lead, w)
+		} else {
+			rest = append(rest, w)
+		}
+	}
+	return leadWarnings(lead, rest)
+}

@@ -1,0 +1,72 @@
+package main
+
+import (
+	"math"
+)
+
+// The noise of DC readings measured apart from the fits.
+//
+// An AC window measures its own noise (the residuals of its sine fit); a DC
+// fit had no such yardstick, and a misfit that every group shares (a
+// go-and-return pair fitted on every traverse as one line aside, missing by
+// twenty times the reading noise) passed as sound, each fit measured
+// against the others. Successive readings along a traverse give one: the
+// second difference x[i-1] - 2 x[i] + x[i+1] of independent readings of
+// noise sigma has variance (1 + 4 + 1) sigma² = 6 sigma², while the field
+// of a conductor, sampled densely, curves little from one reading to the
+// next (it is a smooth function of position). The scale of the differences
+// is taken robustly, as their median absolute value over the median
+// absolute value of a standard normal variable (0.6745), so that the few
+// differences where the field curves sharply (right over a shallow
+// conductor) and spikes do not set it: they raise it only when they are
+// over half the readings, which errs towards a larger noise and a warning
+// not given.
+//
+// Noise that is not independent from reading to reading (the slow wander
+// of a hand-held sensor's tilt) is not seen by the differences; the shared
+// misfit warning it feeds (report sharedMisfit) therefore also requires
+// the misfit to be over 1% of the signal.
+
+// minDiffReadings is the fewest readings of a group whose second
+// differences are taken as a noise measure: the median of fewer than 30
+// differences is too loose (its relative standard error, 1.25/sqrt(n) for a
+// normal sample, over 20%).
+const minDiffReadings = 32
+
+// diffNoise returns the noise per axis of the readings f, taken in the
+// order given (the log's), from their second differences; 0 when there
+// are too few readings or they are not finite.
+func diffNoise(f [][3]float64) float64 {
+	if len(f) < minDiffReadings {
+		return 0
+	}
+	d := make([]float64, 0, 3*(len(f)-2))
+	for i := 1; i+1 < len(f); i++ {
+		for k := range 3 {
+			v := f[i-1][k] - 2*f[i][k] + f[i+1][k]
+			if math.IsNaN(v) || math.IsInf(v, 0) {
+				return 0
+			}
+			d = append(d, math.Abs(v))
+		}
+	}
+	return medianOf(d) / madNormal / math.Sqrt(6)
+}
+
+// madNormal is the median of |Z| for a standard normal Z, Phi^-1(0.75).
+const madNormal = 0.6744897501960817
+
+// dcMeasuredNoise is the median over the DC groups of each group's
+// diffNoise, nT; 0 for an AC survey or when no group has enough readings.
+func dcMeasuredNoise(sv *survey) float64 {
+	if sv.ac {
+		return 0
+	}
+	var v []float64
+	for _, g := range sv.groups {
+		if s := diffNoise(g.fields); s > 0 {
+			v = append(v, s)
+		}
+	}
+	return medianOf(v)
+}

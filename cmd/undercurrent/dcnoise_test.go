@@ -1,0 +1,120 @@
+package main
+
+import (
+	"math"
+	"math/rand/v2"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"gonum.org/v1/gonum/stat/distuv"
+)
+
+// The consistency constant is the upper quartile of the standard normal,
+// Phi^-1(0.75), checked against gonum's distuv (a reference library).
+func TestMadNormalConstant(t *testing.T) {
+	if q := distuv.UnitNormal.Quantile(0.75); math.Abs(q-madNormal) > 1e-12 {
+		t.Fatalf("madNormal %v, Phi^-1(0.75) %v", madNormal, q)
+	}
+}
+
+// diffNoise recovers the noise of readings along a traverse over a line
+// current. The check is a property of independent variates: the second
+// difference x[i-1] - 2x[i] + x[i+1] has variance (1+4+1) sigma². The
+// readings are the field of a 10 A line 1 m below a traverse read every
+// 5 cm (B = mu0 I / (2 pi r), Ampere's law) plus normal noise of 3 nT.
+func TestDiffNoiseRecoversWhiteNoise(t *testing.T) {
+	const sigma = 3.0
+	rng := rand.New(rand.NewPCG(7, 11))
+	for _, n := range []int{200, 2000} {
+		f := make([][3]float64, n)
+		for i := range f {
+			x := -0.05*float64(n)/2 + 0.05*float64(i)
+			r2 := x*x + 1
+			k := 2e-7 * 10 * 1e9 / r2 // mu0 I / (2 pi r) over r, nT/m
+			f[i] = [3]float64{
+				17000 + k*1 + sigma*rng.NormFloat64(),
+				1500 + sigma*rng.NormFloat64(),
+				-44000 + k*x + sigma*rng.NormFloat64(),
+			}
+		}
+		got := diffNoise(f)
+		// The MAD of 3(n-2) differences: relative standard error about
+		// 1.25/sqrt(3n) (normal sample), 5% at n = 200; allow 4 of those.
+		tol := 4 * 1.25 / math.Sqrt(3*float64(n))
+		if math.Abs(got/sigma-1) > tol {
+			t.Errorf("%d readings: noise %.3f nT, want %.1f within %.0f%%", n, got, sigma, 100*tol)
+		}
+	}
+	if got := diffNoise(make([][3]float64, minDiffReadings-1)); got != 0 {
+		t.Errorf("too few readings: %v, want 0", got)
+	}
+}
+
+// A DC misfit every group shares is named: a go-and-return pair 0.3 m
+// apart (invented fixture, the ac-pair-balanced scenario carrying DC at
+// 2 nT noise) fitted with one line per traverse (--count 1) misses by
+// twenty times the noise on every traverse, each fit "sound" against the
+// others. Before, DC logs had no noise measured apart from the fits and no
+// warning was given. A single line (single-line.toml) draws none.
+func TestLocateDCSharedMisfit(t *testing.T) {
+	dir := t.TempDir()
+	pair := simulateText(t, dir, "dcpair", dcPairScenario, ".csv")
+	_, single := scenario(t, "single-line.toml")
+	one := filepath.Join(dir, "single.csv")
+	mustCLI(t, "simulate", single, "-o", one)
+	for _, c := range []struct {
+		args []string
+		warn bool
+	}{
+		{[]string{"--count", "1", pair}, true},
+		{[]string{one}, false},
+	} {
+		doc := locateDoc(t, append([]string{"--group-by", "group", "--reference-z", "0"}, c.args...)...)
+		var got string
+		for _, w := range doc.Warnings {
+			if strings.Contains(w, "do not describe this field") {
+				got = w
+			}
+		}
+		if c.warn && !strings.Contains(got, "the readings themselves show") {
+			t.Errorf("%v: warnings %q, want one saying the fits miss the readings", c.args, doc.Warnings)
+		}
+		if !c.warn && got != "" {
+			t.Errorf("%v: warning %q", c.args, got)
+		}
+	}
+}
+
+const dcPairScenario = `# Invented: a DC go-and-return pair, cores 0.3 m apart at 1.5 m, 2 nT noise.
+name = "dc-pair"
+site = "Sallow Hythe feeder (invented)"
+seed = 1
+start = "2026-05-10T10:00:00Z"
+[earth]
+field_nt = [-300.0, 18000.0, -46000.0]
+[sensor]
+height_m = 0.3
+noise_nt = 2.0
+sample_rate_hz = 10.0
+[survey]
+route = [[0.0, 0.0], [0.0, 40.0]]
+count = 7
+spacing_m = 5.0
+first_at_m = 5.0
+length_m = 8.0
+speed_m_s = 0.5
+turn_s = 5.0
+[[conductor]]
+name = "go core"
+kind = "line"
+point = [-0.15, 0.0, -1.5]
+direction = [0.0, 1.0, 0.0]
+current_a = 10.0
+[[conductor]]
+name = "return core"
+kind = "line"
+point = [0.15, 0.0, -1.5]
+direction = [0.0, 1.0, 0.0]
+current_a = -10.0
+`
