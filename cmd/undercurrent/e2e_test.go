@@ -546,7 +546,8 @@ func TestDemo(t *testing.T) {
 	}
 	// Each automatic count stops at a count it rejects, and says why
 	// (or at the most it may try, which it then chooses: T07's refit
-	// with the magnetised object).
+	// with the magnetised object); only a count whose lines collapsed
+	// into a line dipole is passed over for more lines.
 	for _, g := range doc.Groups {
 		chosen := 0
 		for i, c := range g.Criteria {
@@ -555,7 +556,7 @@ func TestDemo(t *testing.T) {
 			}
 			if last := i == len(g.Criteria)-1; last && !c.Chosen && c.Rejected == "" {
 				t.Errorf("%s: the count stopped at %d lines without saying why: %+v", g.Key, c.Count, g.Criteria)
-			} else if !last && c.Rejected != "" {
+			} else if !last && c.Rejected != "" && !strings.Contains(c.Rejected, "more lines tried") {
 				t.Errorf("%s: %d lines rejected (%s) but more were tried", g.Key, c.Count, c.Rejected)
 			}
 		}
