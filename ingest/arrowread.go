@@ -67,10 +67,12 @@ func newArrowReaderFor(name, format string, sc *arrow.Schema, cfg *config) (*arr
 	if err != nil {
 		return nil, err
 	}
-	if ts, ok := types[pl.src[cTime]].(*arrow.TimestampType); ok && ts.TimeZone == "" {
-		// Arrow: a timestamp without a time zone is wall-clock time in
-		// an unstated zone.
-		pl.naiveTime(name, fmt.Sprintf("timestamps of type %s without a time zone", ts), true)
+	// Arrow: a timestamp without a time zone is wall-clock time in an
+	// unstated zone. (A log read with WithTimeOptional may have no time.)
+	if pl.src[cTime] >= 0 {
+		if ts, ok := types[pl.src[cTime]].(*arrow.TimestampType); ok && ts.TimeZone == "" {
+			pl.naiveTime(name, fmt.Sprintf("timestamps of type %s without a time zone", ts), true)
+		}
 	}
 	return &arrowReader{name: name, pl: pl, cfg: cfg, last: math.NaN()}, nil
 }

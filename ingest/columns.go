@@ -41,6 +41,9 @@ const (
 	MetaFrame  = "undercurrent.frame"  // "enu" or "sensor"
 	MetaOrigin = "undercurrent.origin" // "lat lon h" (degrees, degrees, metres)
 	MetaPrefix = "undercurrent.meta."  // + key of Samples.Meta
+	// MetaTime is "absent" in the schema of a log read without a time
+	// column (WithTimeOptional): its time column is NaN.
+	MetaTime = "undercurrent.time"
 )
 
 // Internal indices of the canonical and input-only columns, in output order.

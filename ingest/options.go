@@ -71,6 +71,7 @@ type config struct {
 	origin            Geodetic
 	originMode        originMode
 	allowMissing      bool
+	timeOptional      bool // a log without a time column is read, its times NaN (WithTimeOptional)
 	allowBackwards    bool
 	groupOrder        bool // time must not go backwards within each group (WithTimeOrder)
 	allowUnterminated bool // Arrow IPC stream files may lack the end-of-stream marker
@@ -211,6 +212,14 @@ func WithOriginMean() Option { return func(c *config) { c.originMode = originMea
 // WithAllowMissing accepts empty cells, NaN and Arrow nulls in numeric
 // columns as missing values (NaN). By default they are errors.
 func WithAllowMissing(ok bool) Option { return func(c *config) { c.allowMissing = ok } }
+
+// WithTimeOptional(true) reads a log that has no time column, for readers
+// that use no time (a calibration from the field alone). Its time column
+// is NaN, its schema carries MetaTime "absent" and Samples.NoTime is set;
+// time order is not checked. A log that has a time column is read as
+// without the option. By default a log without one is an error naming the
+// file and the columns found.
+func WithTimeOptional(ok bool) Option { return func(c *config) { c.timeOptional = ok } }
 
 // WithAllowBackwards(true) accepts time going backwards anywhere, as
 // WithTimeOrder(TimeAnyOrder) does; WithAllowBackwards(false) restores the

@@ -18,11 +18,13 @@ type plan struct {
 	header   []string    // source column names
 	src      [nCanon]int // source column index, -1 when absent
 	unit     [nCanon]string
+	unitFrom [nCanon]string // where the unit came from (ColumnMapping.UnitFrom)
 	scale    [nCanon]float64
 	auto     [nCanon]bool   // found by name rather than by an explicit mapping
 	desc     [nCanon]string // how a column is derived, when more than a copy
 	geodetic bool           // positions come from lat/lon/height
 	hasPos   bool           // output has x, y, z
+	noTime   bool           // no time column (WithTimeOptional): times are NaN
 	inFrame  Frame          // frame of the input columns
 	out      []int          // canonical indices of the output columns, in order
 	schema   *arrow.Schema  // output schema, with metadata
@@ -162,23 +164,56 @@ type ColumnMapping struct {
 	Source string  `json:"source"` // the input's column name(s)
 	Unit   string  `json:"unit"`   // unit of the input
 	Scale  float64 `json:"scale"`  // factor to the canonical unit
+	// UnitFrom says where the unit came from: UnitGiven, UnitFromName,
+	// UnitFromFormat, UnitFromMetadata or UnitDefault ("" for a column
+	// the input does not have).
+	UnitFrom string `json:"unit_from,omitempty"`
+}
+
+// Where a column's unit came from (ColumnMapping.UnitFrom).
+const (
+	// UnitGiven: by WithUnits.
+	UnitGiven = "given"
+	// UnitFromName: a unit suffix of the column's name ("Bx_uT").
+	UnitFromName = "name"
+	// UnitFromFormat: the format defines it (IAGA-2002: nT).
+	UnitFromFormat = "format"
+	// UnitFromMetadata: the input is in the canonical form, as this
+	// package writes it: its schema metadata (Arrow, Parquet) or "# key:
+	// value" comment lines (CSV) carry MetaFrame, and its columns are in
+	// the canonical units (bx, by, bz in nT).
+	UnitFromMetadata = "metadata"
+	// UnitDefault: nothing states the unit; the canonical unit is assumed.
+	UnitDefault = "default"
+)
+
+// Mappings returns where each output column of a reader opened by this
+// package comes from, with its unit and where that unit came from (nil
+// for readers of other packages).
+func Mappings(r Reader) []ColumnMapping {
+	if p := planOf(r); p != nil {
+		return p.mappings()
+	}
+	return nil
 }
 
 func (p *plan) mappings() []ColumnMapping {
 	var m []ColumnMapping
 	for _, c := range p.out {
-		cm := ColumnMapping{Column: canonNames[c], Unit: p.unit[c], Scale: p.scale[c]}
+		cm := ColumnMapping{Column: canonNames[c], Unit: p.unit[c], Scale: p.scale[c], UnitFrom: p.unitFrom[c]}
 		switch {
 		case p.desc[c] != "":
 			cm.Source = p.desc[c]
 		case p.src[c] >= 0:
 			cm.Source = p.header[p.src[c]]
+		case c == cTime && p.noTime:
+			cm.Source, cm.Unit = "(absent: no time)", ""
 		case c >= cX && c <= cZ && p.geodetic:
 			cm.Source = "WGS84 " + p.header[p.src[cLat]] + "/" + p.header[p.src[cLon]]
 			if p.src[cHeight] >= 0 {
 				cm.Source += "/" + p.header[p.src[cHeight]]
 			}
-			cm.Unit, cm.Scale = "m", 1
+			cm.Unit, cm.Scale, cm.UnitFrom = "m", 1, UnitFromFormat
 		default:
 			cm.Source = "(absent: 0)"
 		}
@@ -282,8 +317,9 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 
 	// Required columns.
 	var missing []string
+	p.noTime = p.src[cTime] < 0 && cfg.timeOptional
 	for _, c := range []int{cTime, cBx, cBy, cBz} {
-		if p.src[c] < 0 {
+		if p.src[c] < 0 && !(c == cTime && p.noTime) {
 			missing = append(missing, canonNames[c])
 		}
 	}
@@ -302,11 +338,18 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 			continue
 		}
 		u, ok := cfg.units[c]
-		if !ok {
-			u = unitFromName[c]
-		}
-		if u == "" {
-			u = defaultUnit(kindOf(c))
+		_, canonical := meta[MetaFrame]
+		switch {
+		case ok:
+			p.unitFrom[c] = UnitGiven
+		case unitFromName[c] != "":
+			u, p.unitFrom[c] = unitFromName[c], UnitFromName
+		case format == string(FormatIAGA):
+			u, p.unitFrom[c] = defaultUnit(kindOf(c)), UnitFromFormat
+		case canonical:
+			u, p.unitFrom[c] = defaultUnit(kindOf(c)), UnitFromMetadata
+		default:
+			u, p.unitFrom[c] = defaultUnit(kindOf(c)), UnitDefault
 		}
 		s, err := unitScale(kindOf(c), u)
 		if err != nil {
@@ -350,15 +393,15 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 		return nil, fileErr(file, nil, "found only one of latitude and longitude (columns found: %s)", strings.Join(header, ", "))
 	}
 	for c := 0; c < nOut; c++ {
-		if p.src[c] >= 0 || (c >= cX && c <= cZ && p.hasPos) {
+		if p.src[c] >= 0 || (c >= cX && c <= cZ && p.hasPos) || (c == cTime && p.noTime) {
 			p.out = append(p.out, c)
 		}
 	}
 	if p.origin != nil {
 		p.enu = p.origin.frame()
 	}
-	p.orderGroup = !cfg.allowBackwards && cfg.groupOrder && p.src[cGroup] >= 0
-	p.orderAll = !cfg.allowBackwards && !p.orderGroup
+	p.orderGroup = !cfg.allowBackwards && cfg.groupOrder && p.src[cGroup] >= 0 && !p.noTime
+	p.orderAll = !cfg.allowBackwards && !p.orderGroup && !p.noTime
 	p.buildSchema()
 	return p, nil
 }
@@ -555,6 +598,9 @@ func (p *plan) buildSchema() {
 	}
 	keys := []string{MetaFrame}
 	vals := []string{p.outFrame().String()}
+	if p.noTime {
+		keys, vals = append(keys, MetaTime), append(vals, "absent")
+	}
 	if p.origin != nil {
 		keys = append(keys, MetaOrigin)
 		vals = append(vals, formatOrigin(*p.origin))
@@ -598,6 +644,9 @@ func (rb *rawBatch) reset(p *plan) {
 // transform applies the frame and position conversions in place.
 func (p *plan) transform(rb *rawBatch) {
 	n := rb.n
+	if p.noTime {
+		rb.f[cTime] = nans(rb.f[cTime][:0], n)
+	}
 	for c := cX; c <= cZ; c++ {
 		if p.hasPos && len(rb.f[c]) != n {
 			rb.f[c] = zeros(rb.f[c][:0], n)
@@ -636,6 +685,14 @@ func zeros(s []float64, n int) []float64 {
 	}
 	s = s[:n]
 	clear(s)
+	return s
+}
+
+func nans(s []float64, n int) []float64 {
+	s = zeros(s, n)
+	for i := range s {
+		s[i] = math.NaN()
+	}
 	return s
 }
 

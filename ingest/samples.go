@@ -29,6 +29,9 @@ type Samples struct {
 	Frame      Frame             // FrameENU (default) or FrameSensor
 	Origin     *Geodetic         // non-nil when positions were converted from WGS84 lat/lon/height
 	Meta       map[string]string // e.g. IAGA-2002 header fields ("station_name", "geodetic_latitude", ...)
+	// NoTime: the log has no time column (read with WithTimeOptional);
+	// Time is NaN.
+	NoTime bool
 	// Warnings are the reader's warnings (see Warnings): problems with the
 	// input that did not stop the reading. Callers should show them.
 	Warnings []string
@@ -163,6 +166,8 @@ func applySchemaMeta(s *Samples, sc *arrow.Schema) {
 			if _, err := fmt.Sscanf(v, "%g %g %g", &g.Lat, &g.Lon, &g.H); err == nil {
 				s.Origin = &g
 			}
+		case k == MetaTime:
+			s.NoTime = v == "absent"
 		case strings.HasPrefix(k, MetaPrefix):
 			s.Meta[strings.TrimPrefix(k, MetaPrefix)] = v
 		}
@@ -204,6 +209,9 @@ func (s *Samples) schema() (*arrow.Schema, []int, error) {
 		frame = FrameSensor
 	}
 	keys, vals := []string{MetaFrame}, []string{frame.String()}
+	if s.NoTime {
+		keys, vals = append(keys, MetaTime), append(vals, "absent")
+	}
 	if s.Origin != nil {
 		keys, vals = append(keys, MetaOrigin), append(vals, formatOrigin(*s.Origin))
 	}

@@ -43,11 +43,14 @@ Methods (give exactly one):
                    readings at 0 and 180 degrees of rotation about one axis
                    (--flip-axis, default z): offsets of the two other axes.
   --zero FILE      readings inside a magnetic shield: offsets of all axes.
+                   Near zero in any unit, so the field's unit must be stated:
+                   by --unit, in the column names (Bx_nT) or by the format.
   --show CAL.json  print a saved calibration file.
 
 Logs are any format undercurrent reads (CSV, Arrow, Parquet), with the same
 input flags as the other commands (--column, --unit, --delimiter, ...); only
-bx, by, bz are used, in the sensor's own axes. A spin or flip log whose
+bx, by, bz are used, in the sensor's own axes, and a log needs no time
+column. A spin or flip log whose
 median |B| is far from the Earth's field gets a warning (a unit is probably
 wrong), and one impossibly far (below 1 pT or above 0.1 T) is refused
 unless --unit gives the field's unit.
@@ -158,9 +161,10 @@ Examples:
 			if err != nil {
 				return err
 			}
+			// No method uses time: a log may have no time column, and
+			// the order of one it has is not checked.
+			opts = append(opts, ingest.WithTimeOptional(true))
 			if !fs.Changed("time-order") {
-				// No method uses time: a log without a time column
-				// still needs one, but its order is not checked.
 				opts = append(opts, ingest.WithTimeOrder(ingest.TimeAnyOrder))
 			}
 			// sensor is the sensor the logs name in their metadata, kept in
@@ -214,6 +218,9 @@ Examples:
 				if err != nil {
 					return inFile(zero, err)
 				}
+				if err := zeroUnitStated(zero, opts, res.Offset); err != nil {
+					return err
+				}
 				cal = calibrate.FromOffset(calibrate.MethodZero, res, in)
 				for _, w := range res.Warnings {
 					fmt.Fprintf(stderr, "warning: %s: %s\n", zero, w)
@@ -260,6 +267,44 @@ Examples:
 			return nil
 		},
 	})
+}
+
+// zeroUnitStated refuses a zero-field log whose field columns state no
+// unit: not given with --unit, not in the columns' names (Bx_nT), not by
+// the format (IAGA-2002) nor by undercurrent's canonical form (its
+// undercurrent.frame metadata: nT). A spin or flip log holds the Earth's
+// field, whose size tells a wrong unit (checkFieldUnits); a log inside a
+// shield reads near zero in any unit, so an offset of 0.31 read as nT
+// could be 310 nT written in µT, and the calibration would leave almost
+// all of it in the survey. offset is the offset read as nT, for the
+// message.
+func zeroUnitStated(path string, opts []ingest.Option, offset [3]float64) error {
+	// A fixed origin spares reading WGS84 positions through for
+	// --origin mean; only the header is looked at.
+	r, err := ingest.Open(path, append(append([]ingest.Option(nil), opts...), ingest.WithOrigin(ingest.Geodetic{}))...)
+	if err != nil {
+		return err
+	}
+	defer r.Release()
+	var cols, srcs []string
+	for _, m := range ingest.Mappings(r) {
+		if fieldAxis(m.Column) >= 0 && m.UnitFrom == ingest.UnitDefault {
+			cols, srcs = append(cols, m.Column), append(srcs, m.Source)
+		}
+	}
+	if len(cols) == 0 {
+		return nil
+	}
+	what := strings.Join(cols, ", ")
+	if src := strings.Join(srcs, ", "); src != what {
+		what = src + ", read as " + what
+	}
+	var flag []string
+	for _, c := range cols {
+		flag = append(flag, c+"=U")
+	}
+	return usageErrorf("%s: the field columns (%s) state no unit, and a log inside a shield reads near zero in any unit: read as nT its offset is %.4g, %.4g, %.4g nT, written in µT it would be 1000 times that. Give the unit with --unit %s, U the unit the log is written in (%s), or put it in the column names (%s_nT)",
+		path, what, offset[0], offset[1], offset[2], strings.Join(flag, ","), fieldUnits, srcs[0])
 }
 
 // inFile names path in an error from the calibrate package, whose own
@@ -314,8 +359,11 @@ func spinNotes(cal *calibrate.Calibration, res *calibrate.EllipsoidResult, times
 				parts = append(parts, fmt.Sprintf("and %d more", len(idx)-5))
 				break
 			}
-			if j < len(times) {
+			switch {
+			case j < len(times) && !math.IsNaN(times[j]):
 				parts = append(parts, calibrationTime(times[j]))
+			default: // a log without times
+				parts = append(parts, fmt.Sprintf("reading %d", j+1))
 			}
 		}
 		return strings.Join(parts, ", ")

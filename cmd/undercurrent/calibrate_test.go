@@ -140,7 +140,7 @@ func TestCalibrateCommandZeroAndFlip(t *testing.T) {
 	if !strings.Contains(out, "12.50") || !strings.Contains(out, "-7.25") || !strings.Contains(out, "z axis is not determined") {
 		t.Errorf("flip output:\n%s", out)
 	}
-	code, out, errOut = runCmd("calibrate", "--zero", write("shield.csv", 0, off), "--json")
+	code, out, errOut = runCmd("calibrate", "--zero", write("shield.csv", 0, off), "--unit", "bx=nT,by=nT,bz=nT", "--json")
 	if code != 0 || !strings.Contains(out, `"method": "zero"`) || !strings.Contains(out, "12.5") {
 		t.Errorf("zero: exit %d, out %s, err %s", code, out, errOut)
 	}

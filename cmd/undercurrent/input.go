@@ -311,13 +311,14 @@ func readSamples(ctx context.Context, path string, opts ...ingest.Option) (*inge
 }
 
 // dropMissingRows removes the rows of s with a missing (NaN) time,
-// position or field value and returns how many it removed.
+// position or field value and returns how many it removed. The times of a
+// log read without a time column (s.NoTime) are all NaN and not missing.
 func dropMissingRows(s *ingest.Samples) int {
 	n := s.Len()
 	keep := make([]bool, n)
 	kept := 0
 	for i := range n {
-		ok := !math.IsNaN(s.Time[i]) && !math.IsNaN(s.Bx[i]) && !math.IsNaN(s.By[i]) && !math.IsNaN(s.Bz[i])
+		ok := (s.NoTime || !math.IsNaN(s.Time[i])) && !math.IsNaN(s.Bx[i]) && !math.IsNaN(s.By[i]) && !math.IsNaN(s.Bz[i])
 		if s.X != nil {
 			ok = ok && !math.IsNaN(s.X[i]) && !math.IsNaN(s.Y[i]) && !math.IsNaN(s.Z[i])
 		}

@@ -142,7 +142,7 @@ func TestCalibrateAndConvertCheckFieldUnits(t *testing.T) {
 	if err := os.WriteFile(zero, []byte("time,bx,by,bz\n0,12.1,-3.2,0.4\n1,12.3,-3.0,0.6\n2,11.9,-3.1,0.5\n"), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	code, _, errOut = runCmd("calibrate", "--zero", zero)
+	code, _, errOut = runCmd("calibrate", "--zero", zero, "--unit", "bx=nT,by=nT,bz=nT")
 	if code != 0 || strings.Contains(errOut, "median |B|") {
 		t.Errorf("zero-field log: exit %d, stderr %q; want no unit warning", code, errOut)
 	}
