@@ -5,7 +5,6 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"os"
 	"path/filepath"
 	"strconv"
 	"strings"
@@ -38,7 +37,7 @@ It then runs locate on the log as a surveyor would (demodulating the 50 Hz
 field, fitting each traverse, building the route) and writes into DIR the log
 (` + demoLog + `), results.json, results.csv, findings.csv, route.geojson and
 report.html, the crew report to open in a browser. DIR is written whole or not at all;
-its parent directory must exist (the default's, out, is made).
+missing parent directories are made, and removed again if the run fails.
 
 Examples:
   undercurrent demo
@@ -52,12 +51,6 @@ Examples:
 			}
 			if out == "" {
 				return usageErrorf("-o needs a directory")
-			}
-			if !fs.Changed("output") {
-				// The default out/demo is not a typo: make its parent.
-				if err := os.MkdirAll(filepath.Dir(out), 0o755); err != nil {
-					return err
-				}
 			}
 			return runDemo(ctx, out, stdout, progressOn(stderr))
 		},

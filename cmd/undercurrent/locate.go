@@ -1498,10 +1498,9 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 // mistyped -o cannot replace unrelated work.
 func checkOutDir(dir string, keep []string) error {
 	fi, err := os.Lstat(dir)
-	if errors.Is(err, os.ErrNotExist) {
-		// Only the directory itself is made: a missing parent is most
-		// likely a typo, which should not grow a new tree.
-		if err := checkParentDir(dir); err != nil {
+	if notThere(err) {
+		// Missing parents are made with it (stageDir, makeParents).
+		if err := checkDirParents(dir); err != nil {
 			return fmt.Errorf("-o %s: %w", dir, err)
 		}
 		return nil
@@ -1531,8 +1530,9 @@ func checkOutDir(dir string, keep []string) error {
 // stageDir builds the output directory dir whole or not at all: fill
 // writes every file into a temporary sibling directory, which then takes
 // dir's place (an earlier result directory, holding only names locate
-// writes and keep, is replaced). On any error nothing is left behind and
-// dir is as it was.
+// writes and keep, is replaced). Missing parents of dir are made. On any
+// error nothing is left behind (the parents it made are removed) and dir
+// is as it was.
 //
 // Once ctx is done it stops before dir is touched and returns ctx's error.
 func stageDir(ctx context.Context, dir string, keep []string, fill func(tmp string) error) (err error) {
@@ -1543,6 +1543,15 @@ func stageDir(ctx context.Context, dir string, keep []string, fill func(tmp stri
 	if err := ctx.Err(); err != nil {
 		return err
 	}
+	undo, err := makeParents(dir)
+	if err != nil {
+		return err
+	}
+	defer func() {
+		if err != nil {
+			undo()
+		}
+	}()
 	parent := filepath.Dir(dir)
 	tmp, err := os.MkdirTemp(parent, "."+filepath.Base(dir)+".tmp-")
 	if err != nil {

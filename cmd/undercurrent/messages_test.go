@@ -57,8 +57,8 @@ func TestCommandErrorsClean(t *testing.T) {
 			"undercurrent convert: " + holes + ":3: column bx: missing value (empty cell); --strict refuses missing values (without it they are carried over)\n", 1},
 		{[]string{"convert", log, filepath.Join(dir, "nodir", "x.csv")},
 			"undercurrent convert: OUT " + filepath.Join(dir, "nodir", "x.csv") + ": output directory " + filepath.Join(dir, "nodir") + " does not exist\n" + `run "undercurrent help convert" for usage` + "\n", 2},
-		{[]string{"locate", "-o", filepath.Join(dir, "nodir", "res"), log},
-			"undercurrent locate: -o " + filepath.Join(dir, "nodir", "res") + ": output directory " + filepath.Join(dir, "nodir") + " does not exist\n" + `run "undercurrent help locate" for usage` + "\n", 2},
+		{[]string{"locate", "-o", filepath.Join(log, "res"), log},
+			"undercurrent locate: -o " + filepath.Join(log, "res") + ": output directory " + log + " is not a directory\n" + `run "undercurrent help locate" for usage` + "\n", 2},
 	}
 	for _, tc := range cases {
 		code, _, errOut := cli(t, tc.args...)

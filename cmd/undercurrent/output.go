@@ -2,10 +2,12 @@ package main
 
 import (
 	"encoding/json"
+	"errors"
 	"fmt"
 	"os"
 	"path/filepath"
 	"strings"
+	"syscall"
 
 	"undercurrent/ingest"
 )
@@ -171,4 +173,63 @@ func checkCalibrationOut(out string, ins ...[2]string) error {
 		why = fmt.Sprintf("%d bytes, far more than a calibration file", fi.Size())
 	}
 	return usageErrorf("-o %s: the file exists and is %s: calibrate replaces only an earlier calibration file; choose another name, or remove the file first", out, why)
+}
+
+// notThere reports whether err says a path does not exist: it, or one of
+// its parents, is missing, or a parent is a file (ENOTDIR).
+func notThere(err error) bool {
+	return errors.Is(err, os.ErrNotExist) || errors.Is(err, syscall.ENOTDIR)
+}
+
+// checkDirParents checks, before any work, the parents of an output
+// directory dir that does not exist yet: the nearest one that exists must
+// be a directory (the missing ones are made by makeParents when the
+// results are written). Like checkParentDir, a problem is a usage error.
+func checkDirParents(dir string) error {
+	for p := filepath.Dir(filepath.Clean(dir)); ; p = filepath.Dir(p) {
+		fi, err := os.Stat(p)
+		switch {
+		case notThere(err):
+			if filepath.Dir(p) == p {
+				return usageErrorf("output directory %s: its root does not exist", p)
+			}
+			continue
+		case err != nil:
+			return usageErrorf("output directory %s: %v", p, err)
+		case !fi.IsDir():
+			return usageErrorf("output directory %s is not a directory", p)
+		}
+		return nil
+	}
+}
+
+// makeParents makes the missing parent directories of dir, outermost
+// first, and returns a function that removes the ones it made, innermost
+// first, each only while it is empty: a run that fails after making them
+// leaves nothing behind (stageDir calls it on failure).
+func makeParents(dir string) (undo func(), err error) {
+	var missing []string
+	for p := filepath.Dir(filepath.Clean(dir)); ; p = filepath.Dir(p) {
+		if _, err := os.Lstat(p); !notThere(err) || filepath.Dir(p) == p {
+			break
+		}
+		missing = append(missing, p)
+	}
+	var made []string
+	undo = func() {
+		for i := len(made) - 1; i >= 0; i-- {
+			os.Remove(made[i]) // fails, and keeps it, when not empty
+		}
+	}
+	for i := len(missing) - 1; i >= 0; i-- {
+		if err := os.Mkdir(missing[i], 0o755); err != nil {
+			if errors.Is(err, os.ErrExist) {
+				continue // made meanwhile by another run: not ours to remove
+			}
+			undo()
+			return func() {}, err
+		}
+		made = append(made, missing[i])
+	}
+	return undo, nil
 }

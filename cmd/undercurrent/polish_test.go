@@ -108,8 +108,6 @@ func TestOutputExtensionsAndDirectories(t *testing.T) {
 		{"convert", log, filepath.Join(missing, "x.csv")},
 		{"simulate", scen, "-o", filepath.Join(missing, "x.csv")},
 		{"simulate", scen, "-o", filepath.Join(dir, "y.csv"), "--truth", filepath.Join(missing, "t.csv")},
-		{"locate", "-o", filepath.Join(missing, "res"), log},
-		{"demo", "-o", filepath.Join(missing, "demo")},
 		{"calibrate", "--zero", log, "-o", filepath.Join(missing, "cal.json")},
 	} {
 		// A usage error (2), as every output location refused before the work.
