@@ -533,6 +533,11 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		if err := checkBaseLog(o, base); err != nil {
 			return nil, err
 		}
+		if w, err := checkBaseGroups(o.base, bopts, base); err != nil {
+			return nil, err
+		} else if w != "" {
+			sv.alerts = append(sv.alerts, w)
+		}
 		doc.Inputs = append(doc.Inputs, fileInput("base", o.base, base.Len()))
 		for _, w := range base.Warnings {
 			sv.warnings = append(sv.warnings, cliWording(w))
@@ -588,6 +593,11 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		sv.warnings = append(sv.warnings, warns...)
 		if err != nil {
 			return nil, err
+		}
+		if base != nil {
+			if err := checkBaseNotSurvey(o.base, base, path, s); err != nil {
+				return nil, err
+			}
 		}
 		if o.coil.on() {
 			o.coil.toVolts(s)

@@ -212,7 +212,7 @@ func TestFlagValueErrorsAreUsageErrors(t *testing.T) {
 	for _, args := range [][]string{
 		{"locate", "-o", held, log},
 		{"locate", "-o", log, log},
-		{"locate", "-o", filepath.Join(dir, "no", "res"), log},
+		{"locate", "-o", filepath.Join(log, "res"), log}, // a parent that is a file
 	} {
 		if code, _, errOut := cli(t, args...); code != 2 {
 			t.Errorf("%s: exit %d, %q: want a usage error", strings.Join(args, " "), code, errOut)
