@@ -44,16 +44,16 @@ Methods (give exactly one):
                    (--flip-axis, default z): offsets of the two other axes.
   --zero FILE      readings inside a magnetic shield: offsets of all axes.
                    Near zero in any unit, so the field's unit must be stated:
-                   by --unit, in the column names (Bx_nT) or by the format.
+                   by --unit, in the column names (Bx_nT), by the format
+                   (IAGA-2002) or by undercurrent's own metadata (nT).
   --show CAL.json  print a saved calibration file.
 
 Logs are any format undercurrent reads (CSV, Arrow, Parquet), with the same
 input flags as the other commands (--column, --unit, --delimiter, ...); only
 bx, by, bz are used, in the sensor's own axes, and a log needs no time
-column. A spin or flip log whose
-median |B| is far from the Earth's field gets a warning (a unit is probably
-wrong), and one impossibly far (below 1 pT or above 0.1 T) is refused
-unless --unit gives the field's unit.
+column. A spin or flip log whose median |B| is far from the Earth's field
+gets a warning (a unit is probably wrong), and one impossibly far (below
+1 pT or above 0.1 T) is refused unless --unit gives the field's unit.
 
 In the examples, spin.csv and cal.json are the spin log and the
 calibration of the walk-through in README.md; the logs in
