@@ -339,6 +339,9 @@ type Result struct {
 	// Identifiable), or held perpendicular and level when the traverse did not
 	// determine them, with a note in Notes saying why.
 	SingleTraverse bool
+	// Pairs are go-and-return pairs among the lines whose currents and spacing the
+	// data do not separate (see PairEstimate); nil when there are none.
+	Pairs []PairEstimate
 	// Notes are cautions about the whole fit.
 	Notes []string
 }

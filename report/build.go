@@ -396,7 +396,13 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int) (Group, route
 	for _, s := range res.Sources {
 		g.Sources = append(g.Sources, buildSource(s, pts, ac))
 	}
-	weak := g.OK && NoCurrent(&res.Sources[0], ac)
+	pair := pairOf(res)
+	if pair != nil {
+		g.Pair = buildPair(pair)
+	}
+	// An unresolved go-and-return pair has no current of its own lines,
+	// but its centre and current times spacing are found (Group.Pair).
+	weak := g.OK && NoCurrent(&res.Sources[0], ac) && pair == nil
 	if weak {
 		g.OK = false
 	}
@@ -434,6 +440,17 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int) (Group, route
 		st.Current, st.CurrentSigma = s.Current, s.CurrentSigma
 		st.Phase, st.PhaseSigma = s.Phase, s.PhaseSigma
 		st.Depth, st.DepthSigma = s.Depth, s.DepthSigma
+		if pair != nil {
+			// The route follows the pair's centre, and its current
+			// profile takes the pair's net current (the current that
+			// does not return through the pair), the one current found.
+			if g.OK {
+				st.Point, st.Dir = pair.Point, pair.Dir
+			}
+			st.Current, st.CurrentSigma = pair.NetCurrent, pair.NetCurrentSigma
+			st.PhaseSigma = 0
+			st.Depth, st.DepthSigma = pair.Depth, pair.DepthSigma
+		}
 		for _, o := range res.Sources[1:] {
 			if o.Kind != KindDipole && sound(&o) {
 				st.Further = append(st.Further, route.Line{Point: o.Point, Dir: o.Dir,
@@ -524,6 +541,35 @@ func ambiguity(cs []inverse.ModelScore) string {
 		}
 	}
 	return ""
+}
+
+// pairOf returns the unresolved go-and-return pair of res that holds its
+// strongest line, or nil.
+func pairOf(res *inverse.Result) *inverse.PairEstimate {
+	for i := range res.Pairs {
+		if p := &res.Pairs[i]; p.Lines[0] == 0 || p.Lines[1] == 0 {
+			return p
+		}
+	}
+	return nil
+}
+
+// buildPair converts an unresolved pair for the document.
+func buildPair(p *inverse.PairEstimate) *Pair {
+	unid := []string{"current", "spacing"}
+	if p.AzimuthSigma == 0 {
+		unid = append(unid, "azimuth") // held, not fitted
+	}
+	return &Pair{
+		Sources: p.Lines, Point: p.Point, Direction: p.Dir,
+		Depth: p.Depth, DepthSigma: p.DepthSigma,
+		Offset: p.Offset, OffsetSigma: p.OffsetSigma,
+		Azimuth: p.Azimuth, AzimuthSigma: p.AzimuthSigma,
+		CurrentTimesSpacing: p.Moment, CurrentTimesSpacingSigma: p.MomentSigma,
+		NetCurrent: p.NetCurrent, NetCurrentSigma: p.NetCurrentSigma,
+		Unidentifiable: unid,
+		Notes:          append([]string(nil), p.Notes...),
+	}
 }
 
 // buildSource converts one fitted source; pts are the group's readings,

@@ -97,6 +97,25 @@ func WriteCSV(w io.Writer, d *Document) error {
 			if c := sourceConductor(d, &g, i, &s); c > 0 {
 				set("conductor", strconv.Itoa(c))
 			}
+			if p := g.Pair; p != nil && (i == p.Sources[0] || i == p.Sources[1]) {
+				// A line of an unresolved go-and-return pair: its current
+				// and position are not determined and are left empty; the
+				// depth columns give the pair's centre (Group.Pair, in the
+				// result document, has its current times spacing).
+				set("depth_m", fixSig(p.Depth, p.DepthSigma, 3))
+				set("depth_sigma_m", sig(p.DepthSigma))
+				if c, ok := d.cover(p.Depth); ok {
+					cs := d.coverSigma(p.DepthSigma)
+					set("cover_m", fixSig(c, cs, 3))
+					set("cover_sigma_m", sig(cs))
+				}
+				set("azimuth_deg", fixSig(p.Azimuth, p.AzimuthSigma, 2))
+				set("azimuth_sigma_deg", sig(p.AzimuthSigma))
+				if err := cw.Write(row); err != nil {
+					return fmt.Errorf("report: writing CSV: %w", err)
+				}
+				continue
+			}
 			if s.Kind != KindDipole {
 				set("current_a", fixSig(s.Current, s.CurrentSigma, 4))
 				set("current_sigma_a", sig(s.CurrentSigma))

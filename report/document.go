@@ -268,6 +268,48 @@ type Group struct {
 	// Profile holds a compact copy of the readings for plots; nil when
 	// not kept.
 	Profile *Profile `json:"profile,omitempty"`
+	// Pair, when not nil, says that the group's conductor is a
+	// go-and-return pair whose current and spacing the readings do not
+	// separate: its first two sources are the pair's lines, whose
+	// currents and positions are then not identifiable, and Pair holds
+	// what is determined.
+	Pair *Pair `json:"pair,omitempty"`
+}
+
+// Pair is a go-and-return pair of conductors too close together, for
+// their depth, for the readings to separate the current from the spacing
+// (inverse.PairEstimate): far from currents I and -I spaced d the field
+// is that of a line dipole, mu0 I d / (2 pi r^2), fixed by the product
+// I d and the pair's centre.
+type Pair struct {
+	// Sources are the indices of the pair's two lines in Group.Sources.
+	Sources [2]int `json:"sources"`
+	// Point is the pair's centre, midway between the lines, m; Direction
+	// its unit direction.
+	Point     [3]float64 `json:"point_m"`
+	Direction [3]float64 `json:"direction"`
+	// Depth of the centre below the depth reference, m, its offset from
+	// the readings' centroid (positive to the right looking along
+	// Direction), m, and the azimuth, degrees, with sigmas.
+	Depth        float64 `json:"depth_m"`
+	DepthSigma   float64 `json:"depth_sigma_m"`
+	Offset       float64 `json:"offset_m"`
+	OffsetSigma  float64 `json:"offset_sigma_m"`
+	Azimuth      float64 `json:"azimuth_deg"`
+	AzimuthSigma float64 `json:"azimuth_sigma_deg"`
+	// CurrentTimesSpacing is the pair's current times its spacing, I d,
+	// A m (RMS for AC), and its sigma.
+	CurrentTimesSpacing      float64 `json:"current_times_spacing_am"`
+	CurrentTimesSpacingSigma float64 `json:"current_times_spacing_sigma_am"`
+	// NetCurrent is the sum of the two currents (signed along Direction
+	// for DC, RMS for AC), A, and its sigma: current that does not return
+	// through the pair.
+	NetCurrent      float64 `json:"net_current_a"`
+	NetCurrentSigma float64 `json:"net_current_sigma_a"`
+	// Unidentifiable lists what the readings do not determine: "current"
+	// and "spacing".
+	Unidentifiable []string `json:"unidentifiable"`
+	Notes          []string `json:"notes,omitempty"`
 }
 
 // Criterion scores the model with Count conductors.

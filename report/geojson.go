@@ -133,6 +133,25 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 					props["span_m"] = []json.Number{round(s.Span[0], 3), round(s.Span[1], 3)}
 				}
 			}
+			if p := g.Pair; p != nil && (i == p.Sources[0] || i == p.Sources[1]) {
+				// A line of an unresolved go-and-return pair: its current
+				// and depth are not determined; the pair's centre, depth
+				// and current times spacing are (Group.Pair).
+				delete(props, "current_a")
+				delete(props, "phase_deg")
+				props["feature"] = "pair conductor"
+				props["depth_m"] = roundSig(p.Depth, p.DepthSigma, 3)
+				putSigma(props, "depth_sigma_m", p.DepthSigma)
+				if c, ok := d.cover(p.Depth); ok {
+					cs := d.coverSigma(p.DepthSigma)
+					props["cover_m"] = roundSig(c, cs, 3)
+					putSigma(props, "cover_sigma_m", cs)
+				}
+				props["current_times_spacing_am"] = roundSig(p.CurrentTimesSpacing, p.CurrentTimesSpacingSigma, 4)
+				putSigma(props, "current_times_spacing_sigma_am", p.CurrentTimesSpacingSigma)
+				props["net_current_a"] = roundSig(p.NetCurrent, p.NetCurrentSigma, 4)
+				putSigma(props, "net_current_sigma_a", p.NetCurrentSigma)
+			}
 			geom := d.point(s.Point)
 			fc.Features = append(fc.Features, feature{Type: "Feature", Geometry: geom, Properties: props})
 		}

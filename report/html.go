@@ -398,6 +398,29 @@ func (v *view) groupRow(g *Group) groupRow {
 			}
 			continue
 		}
+		if p := g.Pair; p != nil && (i == p.Sources[0] || i == p.Sources[1]) {
+			// An unresolved go-and-return pair: its lines' currents and
+			// depths are not determined; the pair's centre and current
+			// times spacing are (one entry for the pair, the net current
+			// for its second line).
+			if i == p.Sources[0] {
+				cur = append(cur, "pair: current × spacing "+pm(p.CurrentTimesSpacing, p.CurrentTimesSpacingSigma)+" A·m (current and spacing not separable)")
+				dep = append(dep, pm(p.Depth, p.DepthSigma)+" (centre)")
+				if c, ok := v.D.cover(p.Depth); ok {
+					cov = append(cov, pm(c, v.D.coverSigma(p.DepthSigma)))
+				} else {
+					cov = append(cov, "n/a")
+				}
+				az = append(az, pm(p.Azimuth, p.AzimuthSigma))
+			} else {
+				cur = append(cur, "net current of the pair "+pm(p.NetCurrent, p.NetCurrentSigma))
+				dep, cov, az = append(dep, "–"), append(cov, "–"), append(az, "–")
+			}
+			if s.Phase != nil {
+				ph = append(ph, "–")
+			}
+			continue
+		}
 		cur = append(cur, pm(s.Current, s.CurrentSigma))
 		if s.Phase != nil {
 			ps := 0.0

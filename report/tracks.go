@@ -279,6 +279,11 @@ func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
 // sound reports whether a source's numbers can enter a route analysis:
 // finite, with sigmas that are not negative.
 func sound(s *inverse.SourceEstimate) bool {
+	if s.Kind != KindDipole && !s.Identifiable.Current {
+		// A line of an unresolved go-and-return pair (Group.Pair), or one
+		// whose current the data do not determine: no conductor to follow.
+		return false
+	}
 	vals := []float64{s.Point[0], s.Point[1], s.Point[2], s.Dir[0], s.Dir[1], s.Dir[2], s.Current, s.Phase, s.Depth}
 	for _, v := range vals {
 		if !finite(v) {

@@ -1416,6 +1416,24 @@ func toolVersion() string {
 	return "(devel)"
 }
 
+// pairColumns returns the current and depth columns of source i of group
+// g when it is a line of an unresolved go-and-return pair (report.Pair):
+// the first line's row gives the pair's current times spacing and the
+// depth of its centre, the second's the net current; ok is false for any
+// other source. The lines' own currents and depths are not determined.
+func pairColumns(g *report.Group, i int) (cur, dep string, ok bool) {
+	p := g.Pair
+	switch {
+	case p == nil:
+		return "", "", false
+	case i == p.Sources[0]:
+		return "pair I·d " + report.PlusMinus(p.CurrentTimesSpacing, p.CurrentTimesSpacingSigma) + " A·m", report.PlusMinus(p.Depth, p.DepthSigma), true
+	case i == p.Sources[1]:
+		return "net " + report.PlusMinus(p.NetCurrent, p.NetCurrentSigma), "(centre)", true
+	}
+	return "", "", false
+}
+
 // printSummary prints the groups and findings for a person.
 func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 	ok, readings := soundGroups(doc)
@@ -1439,9 +1457,13 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 	// to a microampere sigma), so the columns widen to the widest.
 	dw := 16 // depth column
 	for _, g := range doc.Groups {
-		for _, s := range g.Sources {
-			cw = max(cw, 1+utf8.RuneCountInString(sourceCurrent(s)))
-			dw = max(dw, 1+utf8.RuneCountInString(report.PlusMinus(s.Depth, s.DepthSigma)))
+		for i, s := range g.Sources {
+			cur, dep := sourceCurrent(s), report.PlusMinus(s.Depth, s.DepthSigma)
+			if c, d, ok := pairColumns(&g, i); ok {
+				cur, dep = c, d
+			}
+			cw = max(cw, 1+utf8.RuneCountInString(cur))
+			dw = max(dw, 1+utf8.RuneCountInString(dep))
 		}
 	}
 	fmt.Fprintf(w, "%-8s %10s %*s %*s %9s", "group", "chainage", cw, "current (A)", dw, "depth (m)", "rms (nT)")
@@ -1469,10 +1491,17 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 			if i > 0 {
 				k, ch = "", ""
 			}
-			cur := sourceCurrent(s)
+			cur, dep := sourceCurrent(s), report.PlusMinus(s.Depth, s.DepthSigma)
+			pc, pd, inPair := pairColumns(&g, i)
+			if inPair {
+				cur, dep = pc, pd
+			}
 			note := ""
 			if i == 0 && g.Problem != "" {
 				note = "  " + g.Problem
+			}
+			if inPair && i == g.Pair.Sources[0] && g.Problem == "" {
+				note = "  go-and-return pair: centre depth; current and spacing not separable"
 			}
 			if tracks {
 				c := "-"
@@ -1484,7 +1513,7 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 				}
 				note = fmt.Sprintf(" %9s", c) + note
 			}
-			fmt.Fprintf(w, "%-8s %10s %*s %*s %9.3g%s\n", k, ch, cw, cur, dw, report.PlusMinus(s.Depth, s.DepthSigma), g.RMS, note)
+			fmt.Fprintf(w, "%-8s %10s %*s %*s %9.3g%s\n", k, ch, cw, cur, dw, dep, g.RMS, note)
 		}
 	}
 	for i := range doc.Conductors {

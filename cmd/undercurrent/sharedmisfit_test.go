@@ -9,8 +9,9 @@ import (
 
 // TestLocateSharedMisfit: a go-and-return pair of cores 0.3 m apart 1.5 m
 // down, 10 A out and 9 A back under 20 nT readings
-// (testdata/scenarios/open/ac-pair-net1A.toml, an open defect: the pair is
-// fitted as one line 1.2 m aside). Every traverse misses the readings by
+// (testdata/scenarios/open/ac-pair-net1A.toml), fitted with one line, which
+// lies 1.2 m aside (as the automatic count did before it reported such a
+// pair as a pair). Every traverse misses the readings by
 // about 24 nT against the 2 nT the windows themselves show, and each fit,
 // measured against the median of the others, passed as sound with no word.
 // locate must warn that the fitted lines do not describe the field; the
@@ -36,11 +37,15 @@ func TestLocateSharedMisfit(t *testing.T) {
 	}
 	log2 := filepath.Join(dir, "pair2.arrows")
 	mustCLI(t, "simulate", "--seed", "2", two, "-o", log2)
+	// The pair is fitted with one line (--count 1): the automatic count now
+	// reports it as a go-and-return pair whose fits describe the field
+	// (TestAcpairScenarios), and the one-line fits are the shared misfit.
 	for _, c := range []struct {
-		log  string
-		warn bool
-	}{{log, true}, {log2, true}, {walk, false}} {
-		doc := locateDoc(t, "--freq", "50", "--group-by", "group", "--reference-z", "0", c.log)
+		log   string
+		warn  bool
+		count string
+	}{{log, true, "1"}, {log2, true, "1"}, {walk, false, "auto"}} {
+		doc := locateDoc(t, "--freq", "50", "--group-by", "group", "--reference-z", "0", "--count", c.count, c.log)
 		var got string
 		for _, w := range doc.Warnings {
 			if strings.Contains(w, "do not describe this field") {
