@@ -43,17 +43,16 @@ const (
 //     findings about that conductor give it, else along the route),
 //     route_chainage_m (the group's, along the route), current, phase,
 //     depth, depth_reference (DepthReference.Kind, what depth_m is
-//     measured from), cover and their sigmas, the
-//     azimuth (the conductor's bearing there, for a GIS to orient a
-//     symbol), the span of conductor the readings see along that bearing
+//     measured from), cover and their sigmas, the azimuth (the
+//     conductor's bearing there, for a GIS to orient a symbol), the span of conductor the readings see along that bearing
 //     (span_m), the group's ok and problem, and "conductor": 1 for the
 //     conductor the route follows, the track's number for a further
 //     conductor, absent for a source in no track;
 //   - "object": one Point per dipole source (a magnetised object), with
 //     the group key, chainages, depth, depth_reference and cover and their
-//     sigmas as for a conductor,
-//     and the magnitude of its moment, moment_a_m2, with its sigma
-//     moment_sigma_a_m2, as its dipole-anomaly finding gives them;
+//     sigmas as for a conductor, and the magnitude of its moment,
+//     moment_a_m2, with its sigma moment_sigma_a_m2, as its dipole-anomaly
+//     finding gives them;
 //   - "finding": one Point per finding at its position, with kind,
 //     severity, chainage range and message, "conductor" when it is about
 //     a further conductor, "lone_line": true when it is about a further
@@ -65,8 +64,8 @@ const (
 // to zero, and each value with two digits past its sigma's leading one. A
 // sigma that is not positive (a fit that failed and left none, a quantity
 // the readings do not determine or that was held) is left out, and a
-// cover's sigma with it, rather than written as 0,
-// which would read as exact. The route's lines run only through stations
+// cover's sigma with it, rather than written as 0, which would read as
+// exact. The route's lines run only through stations
 // the route used (Station.Used), so that each station is drawn once, at
 // its fitted conductor: with fewer than two used stations in a row there
 // is no line, and the points of the failed fits stay as "conductor"
