@@ -11,11 +11,13 @@ import (
 // csvHeader lists the columns of WriteCSV. lon_deg and lat_deg are empty
 // when the document has no geodetic origin; conductor is empty for a
 // source in no track (see Source.Conductor); cover_m and cover_sigma_m are
-// empty when the ground is not known.
+// empty when the ground is not known; moment_a_m2 and moment_sigma_a_m2
+// are a dipole's (a magnetised object's) alone.
 var csvHeader = []string{
-	"chainage_m", "group", "source", "conductor", "kind",
+	"chainage_m", "route_chainage_m", "group", "source", "conductor", "kind",
 	"current_a", "current_sigma_a", "phase_deg", "phase_sigma_deg",
-	"depth_m", "depth_sigma_m", "cover_m", "cover_sigma_m",
+	"depth_m", "depth_sigma_m", "depth_reference", "cover_m", "cover_sigma_m",
+	"moment_a_m2", "moment_sigma_a_m2",
 	"east_m", "north_m", "up_m", "lon_deg", "lat_deg",
 	"azimuth_deg", "azimuth_sigma_deg", "dip_deg", "dip_sigma_deg",
 	"offset_m", "offset_sigma_m",
@@ -39,15 +41,28 @@ var csvCol = func() map[string]int {
 //
 // conductor is 1 for the first line source of a group (the one the route
 // follows), the track's number for a source followed as a further
-// conductor, and empty otherwise. cover_sigma_m is the depth sigma and the
-// ground level's sigma in quadrature, as the cover findings use. ok and
-// problem are the group's (see Group.OK and Group.Problem): a group the
-// route calls poor has ok true and its reason in problem.
+// conductor, and empty otherwise. chainage_m is measured along the row's
+// own conductor, as the findings about that conductor give it: along the
+// further conductor's route, from its first station, for a source
+// followed as one (Track.Route), else along the route (conductor 1);
+// route_chainage_m is the group's chainage along the route whatever the
+// source (Group.Chainage). depth_reference names what depth_m is measured
+// from, as results.json's depth_reference.kind does (DepthBelowSensors or
+// DepthBelowGround). cover_sigma_m is the depth sigma and the ground
+// level's sigma in quadrature, as the cover findings use. moment_a_m2 and
+// its sigma are the magnitude of a dipole's moment as the GeoJSON object
+// gives it (objectMoment). ok and problem are the group's (see Group.OK
+// and Group.Problem): a group the route calls poor has ok true and its
+// reason in problem.
 //
 // Sigmas have six significant digits, so that none is rounded to zero;
 // each value carries two decimals past its sigma's leading digit (and at
 // least the millimetre, 0.01 degree or 1e-4 A), positions the
-// millimetre, and longitude and latitude 1e-8 degree.
+// millimetre, and longitude and latitude 1e-8 degree. A sigma that is not
+// positive (a quantity held rather than fitted, such as an assumed
+// azimuth, or one a failed fit did not estimate) is left empty, as the
+// GeoJSON leaves it out, rather than written as 0, which would read as
+// exact; cover_sigma_m is then empty too.
 func WriteCSV(w io.Writer, d *Document) error {
 	if err := d.Validate(); err != nil {
 		return err
@@ -62,6 +77,7 @@ func WriteCSV(w io.Writer, d *Document) error {
 			set := func(col, v string) { row[csvCol[col]] = v }
 			if g.Chainage != nil {
 				set("chainage_m", fix(*g.Chainage, 3))
+				set("route_chainage_m", fix(*g.Chainage, 3))
 			}
 			set("group", g.Key)
 			set("source", src)
@@ -97,6 +113,9 @@ func WriteCSV(w io.Writer, d *Document) error {
 			if c := sourceConductor(d, &g, i, &s); c > 0 {
 				set("conductor", strconv.Itoa(c))
 			}
+			if c := d.sourceChainage(&g, &s); c != nil {
+				set("chainage_m", fix(*c, 3))
+			}
 			if p := g.Pair; p != nil && (i == p.Sources[0] || i == p.Sources[1]) {
 				// A line of an unresolved go-and-return pair: its current
 				// and position are not determined and are left empty; the
@@ -118,28 +137,32 @@ func WriteCSV(w io.Writer, d *Document) error {
 			}
 			if s.Kind != KindDipole {
 				set("current_a", fixSig(s.Current, s.CurrentSigma, 4))
-				set("current_sigma_a", sig(s.CurrentSigma))
+				set("current_sigma_a", sigCell(s.CurrentSigma))
 				if s.Phase != nil {
 					ps := 0.0
 					if s.PhaseSigma != nil {
 						ps = *s.PhaseSigma
-						set("phase_sigma_deg", sig(ps))
+						set("phase_sigma_deg", sigCell(ps))
 					}
 					set("phase_deg", fixSig(*s.Phase, ps, 2))
 				}
 				set("azimuth_deg", fixSig(s.Azimuth, s.AzimuthSigma, 2))
-				set("azimuth_sigma_deg", sig(s.AzimuthSigma))
+				set("azimuth_sigma_deg", sigCell(s.AzimuthSigma))
 				set("dip_deg", fixSig(s.Dip, s.DipSigma, 2))
-				set("dip_sigma_deg", sig(s.DipSigma))
+				set("dip_sigma_deg", sigCell(s.DipSigma))
 				set("offset_m", fixSig(s.Offset, s.OffsetSigma, 3))
-				set("offset_sigma_m", sig(s.OffsetSigma))
+				set("offset_sigma_m", sigCell(s.OffsetSigma))
+			} else if m, ms, ok := d.objectMoment(&s); ok {
+				set("moment_a_m2", fixSig(m, ms, 4))
+				set("moment_sigma_a_m2", sigCell(ms))
 			}
 			set("depth_m", fixSig(s.Depth, s.DepthSigma, 3))
-			set("depth_sigma_m", sig(s.DepthSigma))
+			set("depth_sigma_m", sigCell(s.DepthSigma))
+			set("depth_reference", d.DepthReference.Kind)
 			if c, ok := d.cover(s.Depth); ok {
-				cs := d.coverSigma(s.DepthSigma)
+				cs := d.sourceCoverSigma(s.DepthSigma)
 				set("cover_m", fixSig(c, cs, 3))
-				set("cover_sigma_m", sig(cs))
+				set("cover_sigma_m", sigCell(cs))
 			}
 			if err := cw.Write(row); err != nil {
 				return fmt.Errorf("report: writing CSV: %w", err)
@@ -166,6 +189,38 @@ func sourceConductor(d *Document, g *Group, i int, s *Source) int {
 		return 1
 	}
 	return 0
+}
+
+// sourceChainage is the chainage of source s of group g along its own
+// conductor: along the further conductor's route (Track.Route, measured
+// from that conductor's first station, as the findings about it give it)
+// for a source followed in a track, otherwise the group's chainage along
+// the route (conductor 1). Nil without a route.
+func (d *Document) sourceChainage(g *Group, s *Source) *float64 {
+	if s.Conductor > 0 {
+		for _, t := range d.Conductors {
+			if t.Number != s.Conductor {
+				continue
+			}
+			for _, st := range t.Route.Stations {
+				if st.Key == g.Key {
+					c := st.Chainage
+					return &c
+				}
+			}
+		}
+	}
+	return g.Chainage
+}
+
+// sourceCoverSigma is coverSigma for a source's depth sigma, and 0 (not
+// estimated) when the depth sigma is not positive: the ground's sigma
+// alone would make a depth that was held or not fitted look known.
+func (d *Document) sourceCoverSigma(depthSigma float64) float64 {
+	if !(depthSigma > 0) {
+		return 0
+	}
+	return d.coverSigma(depthSigma)
 }
 
 // coverSigma is the one-sigma uncertainty of the cover at a depth with
@@ -197,6 +252,16 @@ func fix(v float64, prec int) string {
 
 // sig formats v with six significant digits.
 func sig(v float64) string { return strconv.FormatFloat(v, 'g', 6, 64) }
+
+// sigCell formats a sigma for a CSV cell: six significant digits when it
+// is positive and finite, empty otherwise (held or not estimated, not
+// exact), as putSigma leaves it out of the GeoJSON.
+func sigCell(sigma float64) string {
+	if sigma > 0 && !math.IsInf(sigma, 1) {
+		return sig(sigma)
+	}
+	return ""
+}
 
 // fixSig formats a value whose one-sigma uncertainty is sigma with at least
 // prec decimals and enough more to show two digits past the sigma's

@@ -31,8 +31,8 @@ func ExampleWriteCSV() {
 		fmt.Println(err)
 	}
 	// Output:
-	// chainage_m,group,source,conductor,kind,current_a,current_sigma_a,phase_deg,phase_sigma_deg,depth_m,depth_sigma_m,cover_m,cover_sigma_m,east_m,north_m,up_m,lon_deg,lat_deg,azimuth_deg,azimuth_sigma_deg,dip_deg,dip_sigma_deg,offset_m,offset_sigma_m,points,rms_nt,reference_chi2,dof,ok,problem
-	// ,,1,1,line,12.3100,0.04,,,1.12000,0.006,0.82000,0.006,2.410,0.000,-1.120,,,0.400,0.3,0.00,0,0.000,0,41,4.8,,,true,
+	// chainage_m,route_chainage_m,group,source,conductor,kind,current_a,current_sigma_a,phase_deg,phase_sigma_deg,depth_m,depth_sigma_m,depth_reference,cover_m,cover_sigma_m,moment_a_m2,moment_sigma_a_m2,east_m,north_m,up_m,lon_deg,lat_deg,azimuth_deg,azimuth_sigma_deg,dip_deg,dip_sigma_deg,offset_m,offset_sigma_m,points,rms_nt,reference_chi2,dof,ok,problem
+	// ,,,1,1,line,12.3100,0.04,,,1.12000,0.006,mean-sensor-height,0.82000,0.006,,,2.410,0.000,-1.120,,,0.400,0.3,0.00,,0.000,,41,4.8,,,true,
 }
 
 func ExampleWriteGeoJSON() {
@@ -43,9 +43,9 @@ func ExampleWriteGeoJSON() {
 		fmt.Println(err)
 	}
 	// Output:
-	// {"type":"FeatureCollection","coordinate_frame":"wgs84","local_origin":{"lat_deg":52.4719,"lon_deg":0.1623,"height_m":3},
+	// {"type":"FeatureCollection","coordinate_frame":"wgs84","local_origin":{"lat_deg":52.4719,"lon_deg":0.1623,"height_m":3},"depth_reference":{"kind":"mean-sensor-height","z_m":0,"sensor_height_m":0.3},
 	// "features":[
-	// {"type":"Feature","geometry":{"type":"Point","coordinates":[0.16233547,52.47190000]},"properties":{"azimuth_deg":0.400,"azimuth_sigma_deg":0.3,"conductor":1,"cover_m":0.82000,"cover_sigma_m":0.006,"current_a":12.3100,"current_sigma_a":0.04,"depth_m":1.12000,"depth_sigma_m":0.006,"feature":"conductor","group":"","ok":true,"source":1,"span_m":[-10.000,10.000]}}
+	// {"type":"Feature","geometry":{"type":"Point","coordinates":[0.16233547,52.47190000]},"properties":{"azimuth_deg":0.400,"azimuth_sigma_deg":0.3,"conductor":1,"cover_m":0.82000,"cover_sigma_m":0.006,"current_a":12.3100,"current_sigma_a":0.04,"depth_m":1.12000,"depth_reference":"mean-sensor-height","depth_sigma_m":0.006,"feature":"conductor","group":"","ok":true,"source":1,"span_m":[-10.000,10.000]}}
 	// ]}
 }
 

@@ -24,26 +24,35 @@ const (
 // "coordinate_frame" is "wgs84". Otherwise RFC 7946's requirement of WGS84
 // cannot be met: positions are written as local [east, north] metres,
 // "coordinate_frame" is "local-enu" and "coordinate_note" says so in words,
-// so that nobody takes them for longitudes and latitudes.
+// so that nobody takes them for longitudes and latitudes. The top-level
+// member "depth_reference" is the document's DepthReference, as
+// results.json writes it: what every depth_m is measured from.
 //
 // Features, each with a "feature" property naming what it is:
 //
-//   - "route": a LineString through the route's stations (when there is a
-//     route), with length_m and stations; one more per further conductor
-//     followed along the route (Document.Conductors), with its number in
-//     "conductor" and its median offset from conductor 1 in offset_m;
+//   - "route": a LineString through the route's used stations (when there
+//     is a route; a MultiLineString whose parts a station the route did
+//     not use breaks, see routeFeature), with length_m and stations; one
+//     more per further conductor followed along the route
+//     (Document.Conductors), with its number in "conductor" and its median
+//     offset from conductor 1 in offset_m;
 //   - "conductor": one Point per line source, at the point on the
 //     conductor nearest the group's readings (point_m), with the group key,
-//     chainage, current, phase, depth, cover and their sigmas, the
-//     azimuth (the conductor's bearing there, for a GIS to orient a
-//     symbol), the span of conductor the readings see along that bearing
+//     chainage_m along its own conductor (as results.csv gives it: along a
+//     further conductor's route for a source followed in one, as the
+//     findings about that conductor give it, else along the route),
+//     route_chainage_m (the group's, along the route), current, phase,
+//     depth, depth_reference (DepthReference.Kind, what depth_m is
+//     measured from), cover and their sigmas, the azimuth (the
+//     conductor's bearing there, for a GIS to orient a symbol), the span of conductor the readings see along that bearing
 //     (span_m), the group's ok and problem, and "conductor": 1 for the
 //     conductor the route follows, the track's number for a further
 //     conductor, absent for a source in no track;
 //   - "object": one Point per dipole source (a magnetised object), with
-//     the group key, depth and cover and their sigmas as for a conductor,
-//     and the magnitude of its moment, moment_a_m2, with its sigma
-//     moment_sigma_a_m2, as its dipole-anomaly finding gives them;
+//     the group key, chainages, depth, depth_reference and cover and their
+//     sigmas as for a conductor, and the magnitude of its moment,
+//     moment_a_m2, with its sigma moment_sigma_a_m2, as its dipole-anomaly
+//     finding gives them;
 //   - "finding": one Point per finding at its position, with kind,
 //     severity, chainage range and message, "conductor" when it is about
 //     a further conductor, "lone_line": true when it is about a further
@@ -54,11 +63,13 @@ const (
 // Sigmas are written with six significant digits, so that none is rounded
 // to zero, and each value with two digits past its sigma's leading one. A
 // sigma that is not positive (a fit that failed and left none, a quantity
-// the readings do not determine) is left out rather than written as 0,
-// which would read as exact. The route's LineStrings are written only when
-// at least one of their stations is used (Station.Used): with none, no
-// conductor was found along the route, and the points of the failed fits
-// stay as "conductor" features with "ok": false and their problem.
+// the readings do not determine or that was held) is left out, and a
+// cover's sigma with it, rather than written as 0, which would read as
+// exact. The route's lines run only through stations
+// the route used (Station.Used), so that each station is drawn once, at
+// its fitted conductor: with fewer than two used stations in a row there
+// is no line, and the points of the failed fits stay as "conductor"
+// features with "ok": false and their problem.
 func WriteGeoJSON(w io.Writer, d *Document) error {
 	if err := d.Validate(); err != nil {
 		return err
@@ -74,17 +85,19 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 			"the survey had no geodetic positions. RFC 7946 requires WGS84, so GIS software will misplace " +
 			"these features unless told the frame."
 	}
-	if r := d.Route; r != nil && len(r.Stations) > 1 && anyUsed(r) {
-		fc.Features = append(fc.Features, d.routeFeature(r, map[string]any{}))
+	if r := d.Route; r != nil {
+		if f, ok := d.routeFeature(r, map[string]any{}); ok {
+			fc.Features = append(fc.Features, f)
+		}
 	}
 	for _, t := range d.Conductors {
-		if len(t.Route.Stations) < 2 || !anyUsed(&t.Route) {
-			continue
-		}
-		fc.Features = append(fc.Features, d.routeFeature(&t.Route, map[string]any{
+		f, ok := d.routeFeature(&t.Route, map[string]any{
 			"conductor": t.Number,
 			"offset_m":  round(t.Offset, 3),
-		}))
+		})
+		if ok {
+			fc.Features = append(fc.Features, f)
+		}
 	}
 	for _, g := range d.Groups {
 		for i, s := range g.Sources {
@@ -95,17 +108,21 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 				"ok":      g.OK,
 			}
 			putSigma(props, "depth_sigma_m", s.DepthSigma)
+			props["depth_reference"] = d.DepthReference.Kind
 			if g.Problem != "" {
 				props["problem"] = g.Problem
 			}
+			if c := d.sourceChainage(&g, &s); c != nil {
+				props["chainage_m"] = round(*c, 3)
+			}
 			if g.Chainage != nil {
-				props["chainage_m"] = round(*g.Chainage, 3)
+				props["route_chainage_m"] = round(*g.Chainage, 3)
 			}
 			if c := sourceConductor(d, &g, i, &s); c > 0 {
 				props["conductor"] = c
 			}
 			if c, ok := d.cover(s.Depth); ok {
-				cs := d.coverSigma(s.DepthSigma)
+				cs := d.sourceCoverSigma(s.DepthSigma)
 				props["cover_m"] = roundSig(c, cs, 3)
 				putSigma(props, "cover_sigma_m", cs)
 			}
@@ -192,10 +209,11 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 	var buf bytes.Buffer
 	buf.WriteString(`{"type":"FeatureCollection",`)
 	head, err := json.Marshal(struct {
-		Frame  string  `json:"coordinate_frame"`
-		Note   string  `json:"coordinate_note,omitempty"`
-		Origin *Origin `json:"local_origin,omitempty"`
-	}{fc.Frame, fc.Note, fc.Origin})
+		Frame  string         `json:"coordinate_frame"`
+		Note   string         `json:"coordinate_note,omitempty"`
+		Origin *Origin        `json:"local_origin,omitempty"`
+		Depth  DepthReference `json:"depth_reference"`
+	}{fc.Frame, fc.Note, fc.Origin, d.DepthReference})
 	if err != nil {
 		return fmt.Errorf("report: GeoJSON: %w", err)
 	}
@@ -317,16 +335,6 @@ func putSigma(props map[string]any, key string, sigma float64) {
 	}
 }
 
-// anyUsed reports whether any station of r entered the route's checks.
-func anyUsed(r *Route) bool {
-	for _, s := range r.Stations {
-		if s.Used {
-			return true
-		}
-	}
-	return false
-}
-
 // objectMoment returns the magnitude of a dipole source's moment, A m^2,
 // and its one-sigma uncertainty: the values of the dipole-anomaly finding
 // at the source's position, whose sigma allows for the correlations of the
@@ -360,15 +368,55 @@ func (d *Document) objectMoment(s *Source) (m, sigma float64, ok bool) {
 	return m, sigma, true
 }
 
-// routeFeature is a route's stations as a LineString, with props and the
-// route's feature, length and station count as properties.
-func (d *Document) routeFeature(r *Route, props map[string]any) feature {
-	pts := make([][3]float64, len(r.Stations))
-	for i, s := range r.Stations {
-		pts[i] = s.Point
+// routeFeature is a route's used stations (Station.Used) as a LineString,
+// with props and the route's feature, length and station count as
+// properties. A station the route did not use (a failed fit, no current
+// found, left out for an object) breaks the line: the runs of two or more
+// used stations either side of it become the parts of a MultiLineString,
+// and "parts" gives their number. length_m is the sum of the parts'
+// lengths along the route's chainage and "stations" counts the stations
+// drawn. A used station with no used neighbour makes no part and is shown
+// by its "conductor" Point alone. ok is false when no part has two
+// stations: there is no route to draw.
+func (d *Document) routeFeature(r *Route, props map[string]any) (f feature, ok bool) {
+	var parts [][]Station
+	var run []Station
+	flush := func() {
+		if len(run) > 1 {
+			parts = append(parts, run)
+		}
+		run = nil
+	}
+	for _, s := range r.Stations {
+		if !s.Used {
+			flush()
+			continue
+		}
+		run = append(run, s)
+	}
+	flush()
+	if len(parts) == 0 {
+		return feature{}, false
+	}
+	var length float64
+	var n int
+	lines := make([][]byte, len(parts))
+	for i, part := range parts {
+		pts := make([][3]float64, len(part))
+		for j, s := range part {
+			pts[j] = s.Point
+		}
+		lines[i] = d.line(pts).Coordinates
+		length += part[len(part)-1].Chainage - part[0].Chainage
+		n += len(part)
 	}
 	props["feature"] = "route"
-	props["length_m"] = round(r.Length, 3)
-	props["stations"] = len(r.Stations)
-	return feature{Type: "Feature", Geometry: d.line(pts), Properties: props}
+	props["length_m"] = round(length, 3)
+	props["stations"] = n
+	geom := geometry{Type: "LineString", Coordinates: json.RawMessage(lines[0])}
+	if len(parts) > 1 {
+		props["parts"] = len(parts)
+		geom = geometry{Type: "MultiLineString", Coordinates: json.RawMessage("[" + string(bytes.Join(lines, []byte{','})) + "]")}
+	}
+	return feature{Type: "Feature", Geometry: geom, Properties: props}, true
 }

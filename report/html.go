@@ -97,7 +97,10 @@ type groupRow struct {
 	Key, Chainage, RMS, Points, Status    string
 	Current, Phase, Depth, Cover, Azimuth []string
 	// Conductor numbers each source when further conductors are followed
-	// along the route: 1 for the first, the track's number, or "–".
+	// along the route: 1 for the first, the track's number, or "–". A
+	// further conductor's number is followed by its own chainage in
+	// brackets (Document.sourceChainage), the one its findings give,
+	// where it differs from the group's chainage along the route.
 	Conductor []string
 	Bad       bool
 }
@@ -383,6 +386,11 @@ func (v *view) groupRow(g *Group) groupRow {
 			switch {
 			case s.Conductor > 0:
 				c = fmt.Sprint(s.Conductor)
+				if own := v.D.sourceChainage(g, &s); own != nil && g.Chainage != nil {
+					if o := fmt.Sprintf("%.1f", *own); o != r.Chainage {
+						c += " (" + o + " m)"
+					}
+				}
 			case i == 0 && s.Kind != KindDipole:
 				c = "1"
 			}
@@ -391,10 +399,12 @@ func (v *view) groupRow(g *Group) groupRow {
 		if s.Kind == KindDipole {
 			cur = append(cur, "object")
 			dep = append(dep, pm(s.Depth, s.DepthSigma))
-			if v.CoverNA {
-				cov = append(cov, "n/a")
+			// The object's cover, as results.csv, route.geojson and its
+			// finding give it.
+			if c, ok := v.D.cover(s.Depth); ok {
+				cov = append(cov, pm(c, v.D.sourceCoverSigma(s.DepthSigma)))
 			} else {
-				cov = append(cov, "–")
+				cov = append(cov, "n/a")
 			}
 			continue
 		}
@@ -431,7 +441,7 @@ func (v *view) groupRow(g *Group) groupRow {
 		}
 		dep = append(dep, pm(s.Depth, s.DepthSigma))
 		if c, ok := v.D.cover(s.Depth); ok {
-			cov = append(cov, pm(c, v.D.coverSigma(s.DepthSigma)))
+			cov = append(cov, pm(c, v.D.sourceCoverSigma(s.DepthSigma)))
 		} else {
 			cov = append(cov, "n/a")
 		}

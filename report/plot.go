@@ -7,6 +7,7 @@ import (
 	"image/color"
 	"math"
 	"regexp"
+	"strconv"
 	"strings"
 
 	"gonum.org/v1/plot"
@@ -67,6 +68,7 @@ func newPlot(title, xlabel, ylabel string) *plot.Plot {
 		st.Label.TextStyle.Color = colInk
 		st.Tick.Label.Color = colInk
 		st.Tick.Color = colInk
+		st.Tick.Marker = exactTicks{}
 	}
 	p.Title.TextStyle.Font.Variant = "Sans"
 	p.Title.TextStyle.Font.Size = vg.Points(11)
@@ -79,6 +81,87 @@ func newPlot(title, xlabel, ylabel string) *plot.Plot {
 	grid.Horizontal.Color = grid.Vertical.Color
 	p.Add(grid)
 	return p
+}
+
+// exactTicks places ticks where plot.DefaultTicks does and labels each
+// with as many decimals as the spacing of the labelled ticks needs, so
+// that every label reads as its tick's value. plot.DefaultTicks formats its
+// labels from the magnitude of the step alone and can round them off the
+// ticks: on a range of 1.63 to 1.88 it puts "1.7" on the tick at 1.65.
+type exactTicks struct{}
+
+// Ticks implements plot.Ticker.
+func (exactTicks) Ticks(min, max float64) []plot.Tick {
+	ticks := plot.DefaultTicks{}.Ticks(min, max)
+	var vals []float64
+	for _, t := range ticks {
+		if t.Label != "" {
+			vals = append(vals, t.Value)
+		}
+	}
+	labels := tickLabels(vals, max-min)
+	j := 0
+	for i := range ticks {
+		if ticks[i].Label != "" {
+			ticks[i].Label = labels[j]
+			j++
+		}
+	}
+	return ticks
+}
+
+// tickLabelTol is how far, as a fraction of the spacing of the labelled
+// ticks, a label may read from its tick's value: far below what an eye can
+// see on a chart, and well above the rounding error of the tick values
+// themselves (1.6500000000000001).
+const tickLabelTol = 1e-6
+
+// tickLabels formats the values of labelled ticks, all with the fewest
+// decimals (fixed notation) or significant digits (exponent notation, for
+// values of a million and more or spacings under 1e-4) that bring every
+// label within tickLabelTol of the spacing of its value. span stands in
+// for the spacing with a single tick.
+func tickLabels(vals []float64, span float64) []string {
+	spacing := span
+	for i := 1; i < len(vals); i++ {
+		if d := math.Abs(vals[i] - vals[i-1]); d > 0 && (d < spacing || spacing <= 0) {
+			spacing = d
+		}
+	}
+	tol := tickLabelTol * spacing
+	big := spacing < 1e-4
+	for _, v := range vals {
+		big = big || math.Abs(v) >= 1e6
+	}
+	format := func(prec int) ([]string, bool) {
+		out := make([]string, len(vals))
+		for i, v := range vals {
+			if math.Abs(v) <= tol {
+				v = 0 // not "-0.00" for a tick at -1e-17
+			}
+			if big {
+				out[i] = strconv.FormatFloat(v, 'g', prec, 64)
+			} else {
+				out[i] = strconv.FormatFloat(v, 'f', prec, 64)
+			}
+			r, err := strconv.ParseFloat(out[i], 64)
+			if err != nil || math.Abs(r-v) > tol {
+				return out, false
+			}
+		}
+		return out, true
+	}
+	lo := 0
+	if big {
+		lo = 1
+	}
+	for prec := lo; prec < 17; prec++ {
+		if out, ok := format(prec); ok {
+			return out
+		}
+	}
+	out, _ := format(-1) // shortest exact form
+	return out
 }
 
 var (

@@ -96,16 +96,48 @@ type inspectedColumn struct {
 }
 
 // inspectedLog is inspect's JSON: ingest.Inspection with the columns'
-// value units.
+// value units, the origin named as results.json names it, and each gap's
+// data row counted from 1 beside ingest's 0-based row.
 type inspectedLog struct {
 	*ingest.Inspection
+	Origin  *inspectedOrigin  `json:"origin,omitempty"`
 	Columns []inspectedColumn `json:"columns"`
+	Time    inspectedTime     `json:"time"`
+}
+
+// inspectedOrigin is the WGS84 origin with the member names of
+// results.json's frame.origin (report.Origin): lat_deg, lon_deg, height_m.
+type inspectedOrigin struct {
+	Lat float64 `json:"lat_deg"`
+	Lon float64 `json:"lon_deg"`
+	H   float64 `json:"height_m"`
+}
+
+// inspectedTime is ingest.TimeStats with inspectedGap gaps.
+type inspectedTime struct {
+	ingest.TimeStats
+	Largest []inspectedGap `json:"largest_gaps"`
+}
+
+// inspectedGap is a gap with DataRow, the data row it follows counted
+// from 1 (the first reading is data row 1), as the text output says it;
+// ingest's row counts from 0.
+type inspectedGap struct {
+	ingest.Gap
+	DataRow int `json:"after_data_row"`
 }
 
 func inspectionJSON(in *ingest.Inspection) inspectedLog {
 	out := inspectedLog{Inspection: in, Columns: []inspectedColumn{}}
+	if o := in.Origin; o != nil {
+		out.Origin = &inspectedOrigin{Lat: o.Lat, Lon: o.Lon, H: o.H}
+	}
 	for _, c := range in.Columns {
 		out.Columns = append(out.Columns, inspectedColumn{ColumnStats: c, ValuesUnit: canonicalUnits[c.Column]})
+	}
+	out.Time = inspectedTime{TimeStats: in.Time, Largest: []inspectedGap{}}
+	for _, g := range in.Time.Largest {
+		out.Time.Largest = append(out.Time.Largest, inspectedGap{Gap: g, DataRow: g.Row + 1})
 	}
 	return out
 }
@@ -166,7 +198,10 @@ func printInspection(w io.Writer, in *ingest.Inspection) {
 		}
 		if len(t.Largest) > 0 {
 			g := t.Largest[0]
-			gaps += fmt.Sprintf(", longest %s s after row %d", short(g.Length), g.Row)
+			// Data rows count the readings from 1, below the header and
+			// any comment lines: not file lines, which ingest's errors
+			// give.
+			gaps += fmt.Sprintf(", longest %s s after data row %d of %d", short(g.Length), g.Row+1, in.Rows)
 		}
 		fmt.Fprintf(tw, "sampling\tmedian step %s s (%s Hz); %s\n", short(t.Interval), short(t.Rate), gaps)
 	}

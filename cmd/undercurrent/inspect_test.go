@@ -57,7 +57,7 @@ func TestInspectText(t *testing.T) {
 	}
 	for _, want := range []string{
 		"rows      11",
-		"median step 1 s (1 Hz); 1 gap, longest 11 s after row 9",
+		"median step 1 s (1 Hz); 1 gap, longest 11 s after data row 10 of 11",
 		"probably in mT (try --unit bx=mT,by=mT,bz=mT)",
 		"group  traverse",
 	} {

@@ -28,7 +28,9 @@ type Crossing struct {
 // Crossings lists, line by line in walking order, where each survey line
 // crosses a line or polyline conductor in plan view. Dipoles have no
 // crossing; a conductor running along a survey line (parallel in plan) has
-// none either, and nor does a sensor standing still (a spin, a fixed
+// none either, nor has a vertical conductor or polyline segment (an earth
+// rod: a point in plan, whose top is the crossing of the segment that
+// reaches it), and nor does a sensor standing still (a spin, a fixed
 // sensor).
 func (sc *Scenario) Crossings() []Crossing {
 	var out []Crossing
@@ -93,12 +95,13 @@ func crossing(l Line, ci int, c Conductor, s float64, pt, u [3]float64, current 
 
 // planIntersect intersects segment p0->p1 with the line q0->q1 in the plane:
 // the point is p0 + s (p1 - p0) = q0 + t (q1 - q0). ok is false for
-// parallel lines.
+// parallel lines and when either has no length in plan (a vertical
+// segment), where s and t are not defined.
 func planIntersect(p0, p1, q0, q1 [2]float64) (s, t float64, ok bool) {
 	r := [2]float64{p1[0] - p0[0], p1[1] - p0[1]}
 	q := [2]float64{q1[0] - q0[0], q1[1] - q0[1]}
 	den := r[0]*q[1] - r[1]*q[0]
-	if math.Abs(den) < 1e-12*math.Hypot(r[0], r[1])*math.Hypot(q[0], q[1]) {
+	if math.Abs(den) <= 1e-12*math.Hypot(r[0], r[1])*math.Hypot(q[0], q[1]) {
 		return 0, 0, false
 	}
 	w := [2]float64{q0[0] - p0[0], q0[1] - p0[1]}
