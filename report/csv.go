@@ -12,7 +12,9 @@ import (
 // when the document has no geodetic origin; conductor is empty for a
 // source in no track (see Source.Conductor); cover_m and cover_sigma_m are
 // empty when the ground is not known; moment_a_m2 and moment_sigma_a_m2
-// are a dipole's (a magnetised object's) alone.
+// are a dipole's (a magnetised object's) alone; the pair_ columns are an
+// unresolved go-and-return pair's (Group.Pair), on both its lines' rows,
+// whose current_a is then empty.
 var csvHeader = []string{
 	"chainage_m", "route_chainage_m", "group", "source", "conductor", "kind",
 	"current_a", "current_sigma_a", "phase_deg", "phase_sigma_deg",
@@ -22,6 +24,8 @@ var csvHeader = []string{
 	"azimuth_deg", "azimuth_sigma_deg", "dip_deg", "dip_sigma_deg",
 	"offset_m", "offset_sigma_m",
 	"points", "rms_nt", "reference_chi2", "dof", "ok", "problem",
+	"pair_current_times_spacing_am", "pair_current_times_spacing_sigma_am",
+	"pair_net_current_a", "pair_net_current_sigma_a",
 }
 
 // csvCol maps a column name of csvHeader to its index.
@@ -123,6 +127,7 @@ func WriteCSV(w io.Writer, d *Document) error {
 				// result document, has its current times spacing).
 				set("depth_m", fixSig(p.Depth, p.DepthSigma, 3))
 				set("depth_sigma_m", sig(p.DepthSigma))
+				set("depth_reference", d.DepthReference.Kind)
 				if c, ok := d.cover(p.Depth); ok {
 					cs := d.coverSigma(p.DepthSigma)
 					set("cover_m", fixSig(c, cs, 3))
@@ -130,6 +135,10 @@ func WriteCSV(w io.Writer, d *Document) error {
 				}
 				set("azimuth_deg", fixSig(p.Azimuth, p.AzimuthSigma, 2))
 				set("azimuth_sigma_deg", sig(p.AzimuthSigma))
+				set("pair_current_times_spacing_am", fixSig(p.CurrentTimesSpacing, p.CurrentTimesSpacingSigma, 4))
+				set("pair_current_times_spacing_sigma_am", sig(p.CurrentTimesSpacingSigma))
+				set("pair_net_current_a", fixSig(p.NetCurrent, p.NetCurrentSigma, 4))
+				set("pair_net_current_sigma_a", sig(p.NetCurrentSigma))
 				if err := cw.Write(row); err != nil {
 					return fmt.Errorf("report: writing CSV: %w", err)
 				}
