@@ -587,8 +587,10 @@ type dipoleSearch struct {
 //
 // Plausible moment: a body magnetised by a field B has at most the moment
 // of a sphere of infinite permeability that encloses it, 3 V B / mu0 (the
-// demagnetising factor of a sphere, 1/3; a body inside the sphere has a
-// smaller polarisability), so one whose centre lies d below the sensors,
+// demagnetising factor of a sphere, 1/3; the polarisability of a
+// perfectly magnetisable body grows with the body, Polya & Szego,
+// Isoperimetric Inequalities in Mathematical Physics, 1951, from memory),
+// so one whose centre lies d below the sensors,
 // and whose sphere must lie below them, has at most 4 pi d^3 B / mu0.
 // Remanent magnetisation adds to that: dipoleRemanence allows a remanent
 // moment of up to nine times the induced (a generous bound meant to catch
