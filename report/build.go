@@ -262,6 +262,7 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 		d.Warnings = append([]string{w}, d.Warnings...)
 	}
 	d.UncertaintyNote = SigmaNote
+	aloneFindings(fits, r)
 	d.SetRoute(r)
 	if len(stations) < 2 {
 		d.Route = nil

@@ -1,10 +1,12 @@
 package report
 
 import (
+	"fmt"
 	"math"
 	"math/cmplx"
 	"runtime"
 	"sort"
+	"strings"
 	"sync"
 
 	"gonum.org/v1/gonum/mat"
@@ -34,7 +36,18 @@ import (
 //   - the dipole lies off the conductor, farther from it horizontally than
 //     its own depth below the sensors' reference times dipoleOffLine: an
 //     object right on the line cannot be told from a bend or a change of
-//     depth, which a point dipole also mimics.
+//     depth, which a point dipole also mimics, and
+//   - the object is credible (dipoleSearch.credible): within reach of the
+//     readings, its moment resolved and no larger than a buried steel
+//     body at its depth could carry (see dipoleReach).
+//
+// When, with the object, the refitted conductor carries no current, the
+// object alone explains the readings: it is refitted without lines
+// (searchAlone) and reported when it lowers the criterion by more than
+// dipoleBIC and is credible, whatever the neighbours carry; the other
+// groups whose line its field explains better (objectField) are then
+// reported as having no current. A group whose neighbours both found no
+// current is searched too (dipoleCandidates).
 //
 // The search starts from the fit's conductors, leaving out its weak lines
 // (under weakShare of the strongest current: they often absorb an
@@ -139,7 +152,8 @@ func paramSigma(r *inverse.Result, name string) float64 {
 }
 
 // dipoleCandidates returns the keys of the groups r reports as current
-// anomalies, and of the poor fits whose misfit is strong and localised
+// anomalies, of the usable groups whose adjacent stations all found no
+// current (an object alone may pass for a line there), and of the poor fits whose misfit is strong and localised
 // (see localMisfit) or whose current departs from both nearest sound
 // neighbours alike by more than dipoleAgreeK standard deviations, the
 // route's between-station scatter (route.Route.ModelScatter) counted in
@@ -162,6 +176,26 @@ func dipoleCandidates(r *route.Route) map[string]bool {
 			if len(f.Keys) == 1 {
 				poor[f.Keys[0]] = true
 			}
+		}
+	}
+	// A line whose neighbours found no current (each adjacent station
+	// failed): an object alone may have been fitted as a line there.
+	for k := range r.Stations {
+		p := &r.Stations[k]
+		if !p.OK || p.Dipole {
+			continue
+		}
+		n, usable := 0, 0
+		for _, j := range []int{k - 1, k + 1} {
+			if j >= 0 && j < len(r.Stations) {
+				n++
+				if r.Stations[j].OK {
+					usable++
+				}
+			}
+		}
+		if n > 0 && usable == 0 {
+			c[p.Key] = true
 		}
 	}
 	tau2 := r.ModelScatter * r.ModelScatter
@@ -265,7 +299,13 @@ func checkDipoles(fits []Fit, r *route.Route) bool {
 		sem <- struct{}{}
 		go func() {
 			defer func() { <-sem; wg.Done() }()
-			found[i] = searchDipole(f)
+			ds := searchDipole(f)
+			if ds != nil && !(ds.current > currentK(f.Problem.Phasors != nil)*ds.currentSigma) {
+				// With the object the conductor carries no current:
+				// the object alone.
+				ds = searchAlone(f, ds.obj.Point)
+			}
+			found[i] = ds
 		}()
 	}
 	wg.Wait()
@@ -273,19 +313,87 @@ func checkDipoles(fits []Fit, r *route.Route) bool {
 	for i := range fits {
 		f := &fits[i]
 		ds := found[i]
-		if ds == nil || ds.gain <= dipoleBIC || ds.atTop {
+		if ds == nil || ds.gain <= dipoleBIC || ds.atTop || !ds.credible(f.Problem) {
 			continue
 		}
-		if !agrees(r, f.Key, cand, ds.current, ds.currentSigma) {
-			continue
-		}
-		if ds.obj.Distance <= dipoleOffLine*ds.obj.Depth {
-			continue
+		if !ds.alone {
+			if !agrees(r, f.Key, cand, ds.current, ds.currentSigma) {
+				continue
+			}
+			if ds.obj.Distance <= dipoleOffLine*ds.obj.Depth {
+				continue
+			}
 		}
 		f.Dipole, f.object, f.Result = true, ds.obj, ds.result
 		changed = true
 	}
+	// An object alone is seen by the traverses beside it too, where its
+	// field's tail may pass for a weak line.
+	for i := range fits {
+		if fits[i].object == nil || fits[i].Result == nil || !objectAlone(fits[i].Result) {
+			continue
+		}
+		for j := range fits {
+			if j != i && objectField(&fits[j], fits[i].object, fits[i].Key) {
+				changed = true
+			}
+		}
+	}
 	return changed
+}
+
+// objectAlone reports whether r holds a magnetised object alone, no
+// conductor (searchAlone).
+func objectAlone(r *inverse.Result) bool {
+	return len(r.Sources) == 1 && r.Sources[0].Kind == KindDipole
+}
+
+// objectField checks whether the readings of f, a usable fit of a line
+// (its current over currentK sigmas), are the field of the object o found
+// alone at the group with the given key rather than a current: with a
+// dipole at o's position, its moment and the background solved linearly,
+// the information criterion is lower than f's fit's by more than
+// dipoleBIC, and with f's lines held and the dipole added the strongest
+// line carries no current (NoCurrent). f then takes that fit, noted, which
+// reports the group as "no current found"; the object itself is reported
+// once, at the group that found it. In review the tail of a steel valve
+// body's field 4 m off passed on the traverses either side for 0.02 A
+// lines 2 m down, "a conductor traced for 8 m" where there was none. It
+// reports whether f changed.
+func objectField(f *Fit, o *route.Object, key string) bool {
+	res, p := f.Result, f.Problem
+	if f.Dipole || res == nil || p == nil || len(res.Sources) == 0 || res.Sources[0].Kind == KindDipole ||
+		!(res.Status.Converged() || res.Status == inverse.Stalled) {
+		return false
+	}
+	ac := p.Phasors != nil
+	if NoCurrent(&res.Sources[0], ac) {
+		return false
+	}
+	var fs inverse.Settings
+	if f.Settings != nil {
+		fs = *f.Settings
+	}
+	set := &inverse.Settings{Background: fs.Background, ReferenceZ: fs.ReferenceZ}
+	dip := inverse.Dipole{Pos: o.Point}
+	rd, err := inverse.FitStrengths(p, []inverse.Source{dip}, set)
+	if err != nil || bic(p, res)-bic(p, rd) <= dipoleBIC {
+		return false
+	}
+	var srcs []inverse.Source
+	for _, s := range res.Sources {
+		srcs = append(srcs, inverse.Line{Point: s.Point, Dir: s.Dir})
+	}
+	rj, err := inverse.FitStrengths(p, append(srcs, dip), set)
+	if err != nil || len(rj.Sources) == 0 || !NoCurrent(&rj.Sources[0], ac) {
+		return false
+	}
+	out := *rj
+	out.Notes = append(append([]string(nil), rj.Notes...), fmt.Sprintf(
+		"the readings are the field of the magnetised object found alone at %s (a point dipole at east %.2f m, north %.2f m): the information criterion is lower by %.0f with it than with the line fitted, and with it the line carries no current",
+		key, o.Point[0], o.Point[1], bic(p, res)-bic(p, rd)))
+	f.Result = &out
+	return true
 }
 
 // agrees reports whether a refitted current (magnitude) of the given sigma
@@ -366,7 +474,7 @@ func checkTrackDipoles(fits []Fit, r *route.Route, tracks []builtTrack) bool {
 	changed := false
 	for _, j := range jobs {
 		f, ds := &fits[j.fit], j.ds
-		if ds == nil || ds.gain <= dipoleBIC || ds.atTop {
+		if ds == nil || ds.gain <= dipoleBIC || ds.atTop || !ds.credible(f.Problem) {
 			continue
 		}
 		// The refitted conductor nearest the track's, in the cross
@@ -407,6 +515,36 @@ func checkTrackDipoles(fits []Fit, r *route.Route, tracks []builtTrack) bool {
 	return changed
 }
 
+// aloneFindings rewords r's findings about the objects found alone
+// (searchAlone): the route describes an object as beside the conductor,
+// at a distance from it, and here there is none.
+func aloneFindings(fits []Fit, r *route.Route) {
+	alone := map[string]*route.Object{}
+	for i := range fits {
+		if f := &fits[i]; f.object != nil && f.Result != nil && objectAlone(f.Result) {
+			alone[f.Key] = f.object
+		}
+	}
+	if len(alone) == 0 {
+		return
+	}
+	for i := range r.Findings {
+		f := &r.Findings[i]
+		if f.Kind != route.KindDipole || len(f.Keys) != 1 || alone[f.Keys[0]] == nil {
+			continue
+		}
+		o := alone[f.Keys[0]]
+		f.Message = strings.Replace(f.Message, fmt.Sprintf(", %.1f m from the conductor", o.Distance), ", with no current under it", 1)
+		vals := f.Values[:0]
+		for _, v := range f.Values {
+			if v.Name != "distance from conductor" {
+				vals = append(vals, v)
+			}
+		}
+		f.Values = vals
+	}
+}
+
 // dipoleSearch is the outcome of searchDipole.
 type dipoleSearch struct {
 	obj    *route.Object
@@ -423,6 +561,109 @@ type dipoleSearch struct {
 	// crossing cable's field, and on the demo, once extra lines deeper than
 	// the survey resolves were refused, T13 and T15 took such objects.
 	atTop bool
+	// alone is true when the object alone, with no conductor, explains
+	// the readings (searchAlone); result then holds the object only.
+	alone bool
+	// inducing is the magnitude of the field the object sits in as far
+	// as the fit knows it, T: the Earth's (dipoleEarthMax) for DC, and
+	// the fitted conductors' field at the object (see credible).
+	inducing float64
+}
+
+// Bounds on an object before it is reported.
+//
+// dipoleReach: the object lies horizontally within dipoleReach times its
+// depth below the readings' mean height of the nearest reading. A
+// dipole's field falls as the cube of the distance: at a horizontal
+// distance of twice its depth it is (1 + 2^2)^(-3/2) = 9% of the peak
+// over it (DOMAIN.md's dipole field), and readings farther off see only
+// its tail, whose position and moment trade against each other. In
+// review, a branch cable's field was taken for "objects" at north 21 and
+// 31 m, 14 and 24 m from traverses that spanned north -7 to 7 m, with
+// moments of 22,551 and 55,942 A m^2.
+//
+// dipoleMomentK: the moment lies over dipoleMomentK of its sigmas from
+// zero (sigma resolved: not 0), as currentK takes a current as found.
+//
+// Plausible moment: a body magnetised by a field B has at most the moment
+// of a sphere of infinite permeability that encloses it, 3 V B / mu0 (the
+// demagnetising factor of a sphere, 1/3; the polarisability of a
+// perfectly magnetisable body grows with the body, Polya & Szego,
+// Isoperimetric Inequalities in Mathematical Physics, 1951, from memory),
+// so one whose centre lies d below the sensors,
+// and whose sphere must lie below them, has at most 4 pi d^3 B / mu0.
+// Remanent magnetisation adds to that: dipoleRemanence allows a remanent
+// moment of up to nine times the induced (a generous bound meant to catch
+// moments no buried object of that depth could carry, not to judge a
+// shape). B is the Earth's field at its strongest, dipoleEarthMax, for DC,
+// plus the fitted conductors' field at the object; for AC the conductors'
+// field alone, and when there is none the moment is not judged.
+const (
+	dipoleReach     = 2.0
+	dipoleMomentK   = 3.0
+	dipoleRemanence = 10.0
+	// dipoleEarthMax is the greatest total intensity of the Earth's main
+	// field, T: about 67,000 nT near the south magnetic pole (the IGRF's
+	// world maps, from memory; 22,000-67,000 nT over the globe).
+	dipoleEarthMax = 67000e-9
+	mu0            = 1.25663706127e-6 // vacuum permeability, N/A^2 (CODATA 2022)
+)
+
+// credible reports whether the object ds found from p's readings may be
+// reported: within reach of the readings, its moment resolved and
+// plausible (see dipoleReach).
+func (ds *dipoleSearch) credible(p *inverse.Problem) bool {
+	o := ds.obj
+	if len(p.Points) == 0 {
+		return false
+	}
+	var zm float64
+	near := math.Inf(1)
+	for _, q := range p.Points {
+		zm += q[2] / float64(len(p.Points))
+		near = math.Min(near, math.Hypot(q[0]-o.Point[0], q[1]-o.Point[1]))
+	}
+	d := zm - o.Point[2]
+	if !(d > 0) || near > dipoleReach*d {
+		return false
+	}
+	if !(o.MomentSigma > 0) || !(o.Moment > dipoleMomentK*o.MomentSigma) {
+		return false
+	}
+	if ds.inducing > 0 && o.Moment > dipoleRemanence*4*math.Pi*d*d*d*ds.inducing/mu0 {
+		return false
+	}
+	return true
+}
+
+// inducingField returns the magnitude of the field, T, that magnetises an
+// object at pos as far as r's fit knows it: for DC the Earth's field at
+// its strongest (dipoleEarthMax) plus the fitted lines' field there (the
+// lines are the FitStrengths sources before the dipole, strengths from 0),
+// for AC the lines' field alone (0 when r has none).
+func inducingField(p *inverse.Problem, lines []inverse.Source, r *inverse.Result, pos [3]float64) float64 {
+	var b [3]complex128
+	for k, s := range lines {
+		l, ok := s.(inverse.Line)
+		if !ok {
+			continue
+		}
+		f := l.Field(pos, 1)
+		c := complex(0, 0)
+		if p.Phasors != nil {
+			c = r.StrengthPhasors[k]
+		} else {
+			c = complex(r.Strengths[k], 0)
+		}
+		for a := range 3 {
+			b[a] += complex(f[a], 0) * c
+		}
+	}
+	m := math.Sqrt(real(b[0]*cmplx.Conj(b[0]) + b[1]*cmplx.Conj(b[1]) + b[2]*cmplx.Conj(b[2])))
+	if p.Phasors == nil {
+		m += dipoleEarthMax
+	}
+	return m
 }
 
 // dipoleLocator finds the dipole position that best explains a problem
@@ -574,18 +815,47 @@ func (l *dipoleLocator) polish(best [3]float64, bestRSS, step, until float64) ([
 	return best, bestRSS
 }
 
-// moment returns the dipole's moment per axis (magnitudes for AC) and
-// sigmas from a FitStrengths result whose dipole strengths start at j.
-func moment(p *inverse.Problem, r *inverse.Result, j int) (m, s [3]float64) {
+// moment returns the dipole's moment per axis and sigmas from a
+// FitStrengths result whose dipole strengths start at j (the lines' before
+// them), and for AC the reference phase of the moment (degrees; 0 for DC):
+// see acMoment.
+func moment(p *inverse.Problem, r *inverse.Result, j int) (m, s [3]float64, phase float64) {
+	if p.Phasors != nil {
+		m, phase = acMoment(r, j)
+	} else {
+		copy(m[:], r.Strengths[j:j+3])
+	}
 	for a := range 3 {
-		if p.Phasors != nil {
-			m[a] = cmplx.Abs(r.StrengthPhasors[j+a])
-		} else {
-			m[a] = r.Strengths[j+a]
-		}
 		s[a] = r.StrengthSigmas[j+a]
 	}
-	return m, s
+	return m, s, phase
+}
+
+// acMoment returns an AC dipole's moment per axis, signed, from a
+// FitStrengths result whose dipole strengths start at j: each axis's
+// phasor's part in phase with a reference phase (its projection on the
+// unit phasor there), and that phase in degrees, in (-180, 180]. The
+// reference is the phase of the strongest axis, so that axis is positive.
+// A moment whose axes are all in phase or opposite (an object magnetised
+// by one field) keeps its direction, up to the one sign an AC quantity
+// leaves open: read with the reference phase, the moment at the phase
+// 180 degrees from it is the vector reversed. Before, each axis's modulus
+// was reported, and a drum of moment (0.4, 0.25, -1.1) A m^2 came out
+// (0.4, 0.25, 1.1).
+func acMoment(r *inverse.Result, j int) (m [3]float64, phase float64) {
+	ph := r.StrengthPhasors[j : j+3]
+	big := 0
+	for a := range 3 {
+		if cmplx.Abs(ph[a]) > cmplx.Abs(ph[big]) {
+			big = a
+		}
+	}
+	ref := cmplx.Phase(ph[big])
+	u := cmplx.Rect(1, -ref)
+	for a := range 3 {
+		m[a] = real(ph[a] * u)
+	}
+	return m, ref * 180 / math.Pi
 }
 
 // without returns p with the field of the dipole at pos, with the moment
@@ -841,7 +1111,8 @@ func searchFrom(f *Fit, from []*inverse.SourceEstimate, at *[3]float64) *dipoleS
 		base = rss / (p.Sigma * p.Sigma)
 		s2 = p.Sigma * p.Sigma
 	}
-	ds := &dipoleSearch{gain: bic(p, res) - (base + k*math.Log(n)), atTop: pos[2] >= loc.zTop-0.005}
+	ds := &dipoleSearch{gain: bic(p, res) - (base + k*math.Log(n)), atTop: pos[2] >= loc.zTop-0.005,
+		inducing: inducingField(p, lines, r, pos)}
 	// Model error left in the readings (a bend of the conductors some
 	// metres away, which the infinite lines miss) is smooth along the
 	// traverse, not white: the sigmas take the residuals' lag-1
@@ -860,7 +1131,7 @@ func searchFrom(f *Fit, from []*inverse.SourceEstimate, at *[3]float64) *dipoleS
 		zref = m / float64(len(p.Points))
 	}
 	o := &route.Object{Point: pos, PointSigma: sig, Depth: zref - pos[2], DepthSigma: sig[2], Evidence: ds.gain}
-	mom, momSig := moment(p, r, len(lines))
+	mom, momSig, momPhase := moment(p, r, len(lines))
 	if momAxisSigma != ([3]float64{}) {
 		momSig = momAxisSigma
 	}
@@ -868,7 +1139,7 @@ func searchFrom(f *Fit, from []*inverse.SourceEstimate, at *[3]float64) *dipoleS
 	o.MomentSigma = momSigma
 	o.Distance = offLine(&lr.Sources[0], pos)
 	ds.obj = o
-	ds.source = inverse.SourceEstimate{Kind: KindDipole, Point: pos, Moment: mom, MomentSigma: momSig,
+	ds.source = inverse.SourceEstimate{Kind: KindDipole, Point: pos, Moment: mom, MomentSigma: momSig, Phase: momPhase,
 		Depth: o.Depth, DepthSigma: o.DepthSigma,
 		Identifiable: inverse.Identifiable{Depth: sig[2] > 0, Offset: sig[0] > 0},
 		Notes:        []string{"point dipole: a magnetised (ferrous) object, not a current; position and moment sigmas with the conductors' geometry free"}}
@@ -916,6 +1187,88 @@ func searchFrom(f *Fit, from []*inverse.SourceEstimate, at *[3]float64) *dipoleS
 		out.Chi2 = ss / (out.Sigma * out.Sigma)
 	}
 	out.Sources = append(append([]inverse.SourceEstimate(nil), lr.Sources...), ds.source)
+	ds.result = &out
+	return ds
+}
+
+// searchAlone fits f's readings with a point dipole alone, no conductor,
+// started at start: searchDipole found the object there and, with it, no
+// current in the conductors refitted. The dipole is placed by a pattern
+// search from start and Newton steps (jointFit.refine), and the object
+// judged by the information criterion against f's fit as searchFrom's
+// are, counting its position, its moment and the background. In review, a
+// steel valve body alone, 0.8 m down with no current anywhere, was
+// reported as a 0.67 A conductor 0.37 m below the sensors (a false cover
+// warning of 0.067 m): the search found the object, but its refitted
+// conductor carried no current, which the rule for an object beside a
+// conductor (its current agrees with the neighbours') refused.
+func searchAlone(f *Fit, start [3]float64) *dipoleSearch {
+	res, p := f.Result, f.Problem
+	var fs inverse.Settings
+	if f.Settings != nil {
+		fs = *f.Settings
+	}
+	set := &inverse.Settings{Background: fs.Background, ReferenceZ: fs.ReferenceZ}
+	zmin, zm := math.Inf(1), 0.0
+	for _, q := range p.Points {
+		zmin = math.Min(zmin, q[2])
+		zm += q[2] / float64(len(p.Points))
+	}
+	minDepth := fs.MinDepth
+	if minDepth <= 0 {
+		minDepth = 0.02
+	}
+	loc := &dipoleLocator{p: p, set: set, srcs: []inverse.Source{nil}, zTop: zmin - math.Max(minDepth, 0.1)}
+	pos, rss := loc.locate(&start)
+	if math.IsInf(rss, 1) {
+		return nil
+	}
+	if jf := newJointFit(loc, pos); jf != nil {
+		rss = jf.refine(rss)
+		pos = jf.pos
+	}
+	r, rss := loc.fit(pos)
+	if r == nil || len(r.StrengthSigmas) < 3 {
+		return nil
+	}
+	nrhs := 1
+	if p.Phasors != nil {
+		nrhs = 2
+	}
+	n := float64(3 * nrhs * len(p.Points))
+	k := float64(len(r.ParamNames)) + 3
+	base := n * math.Log(math.Max(rss, 1e-300)/n)
+	s2 := rss / math.Max(n-k, 1)
+	if p.Sigma > 0 {
+		base = rss / (p.Sigma * p.Sigma)
+		s2 = p.Sigma * p.Sigma
+	}
+	ds := &dipoleSearch{gain: bic(p, res) - (base + k*math.Log(n)), atTop: pos[2] >= loc.zTop-0.005, alone: true,
+		inducing: inducingField(p, nil, r, pos)}
+	var sig, momAxisSigma [3]float64
+	var momSigma float64
+	if jf := newJointFit(loc, pos); jf != nil {
+		sig, momSigma, momAxisSigma = jf.uncertainty(rss, s2, residualAR1(r), r, 0)
+	}
+	zref := res.ReferenceZ
+	if res.DepthReference != "ReferenceZ" {
+		zref = zm
+	}
+	mom, momSig, momPhase := moment(p, r, 0)
+	if momAxisSigma != ([3]float64{}) {
+		momSig = momAxisSigma
+	}
+	o := &route.Object{Point: pos, PointSigma: sig, Depth: zref - pos[2], DepthSigma: sig[2], Evidence: ds.gain,
+		Moment: math.Sqrt(mom[0]*mom[0] + mom[1]*mom[1] + mom[2]*mom[2]), MomentSigma: momSigma}
+	ds.obj = o
+	ds.source = inverse.SourceEstimate{Kind: KindDipole, Point: pos, Moment: mom, MomentSigma: momSig, Phase: momPhase,
+		Depth: o.Depth, DepthSigma: o.DepthSigma,
+		Identifiable: inverse.Identifiable{Depth: sig[2] > 0, Offset: sig[0] > 0},
+		Notes:        []string{"point dipole: a magnetised (ferrous) object, not a current, with no conductor under it; position and moment sigmas from the readings' noise"}}
+	out := *r
+	out.Status = inverse.Linear
+	out.Sources = []inverse.SourceEstimate{ds.source}
+	out.Criteria = nil
 	ds.result = &out
 	return ds
 }
@@ -1209,7 +1562,8 @@ func (j *jointFit) uncertainty(rss0, s2, rho float64, r *inverse.Result, at int)
 	ep, em := make([]float64, nser*n), make([]float64, nser*n)
 	x := make([]float64, np)
 	dm := make([]float64, np)
-	// The same for each axis's moment (magnitude for AC).
+	// The same for each axis's moment (for AC its signed part in phase
+	// with the reference phase, acMoment).
 	var dma [3][]float64
 	for c := range dma {
 		dma[c] = make([]float64, np)
@@ -1225,13 +1579,9 @@ func (j *jointFit) uncertainty(rss0, s2, rho float64, r *inverse.Result, at int)
 				j.set(make([]float64, np))
 				return [3]float64{}, 0, axis
 			}
-			var re, im [3]float64
-			mm[k], re, im = mag(rr)
-			for c := range 3 {
-				ma[k][c] = math.Hypot(re[c], im[c])
-				if p.Phasors == nil {
-					ma[k][c] = re[c]
-				}
+			mm[k], ma[k], _ = mag(rr)
+			if p.Phasors != nil {
+				ma[k], _ = acMoment(rr, at)
 			}
 			series(rr, [][]float64{ep, em}[k])
 		}
@@ -1297,8 +1647,8 @@ func (j *jointFit) uncertainty(rss0, s2, rho float64, r *inverse.Result, at int)
 			v += dm[a] * C.At(a, b) * dm[b]
 		}
 	}
-	// Each axis: its conditional variance (for AC that of the magnitude
-	// too, to first order) and the part through theta.
+	// Each axis: its conditional variance (for AC that of its part in
+	// phase with the reference, to first order) and the part through theta.
 	for c := range 3 {
 		va := r.Covariance.At(at+c, at+c) * f
 		for a := range np {

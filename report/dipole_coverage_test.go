@@ -58,8 +58,8 @@ func summarise(z []float64) zStats {
 }
 
 // coverageQuantities are the finding's values the check covers, then the
-// moment's axes as the group's dipole source gives them (magnitudes for
-// AC).
+// moment's axes as the group's dipole source gives them (for AC in phase
+// with the strongest axis, acMoment).
 var coverageQuantities = [7]string{"east", "north", "depth", "moment", "moment e", "moment n", "moment u"}
 
 // dipoleCoverage runs draws searches, each on one traverse at east 30 m of
@@ -112,8 +112,11 @@ func dipoleCoverage(t testing.TB, seed uint64, draws int, rho, noise float64, ac
 			sig := [7]float64{o.PointSigma[0], o.PointSigma[1], o.DepthSigma, o.MomentSigma, ss[0], ss[1], ss[2]}
 			tru := [7]float64{pos[0], pos[1], -pos[2], math.Sqrt(m[0]*m[0] + m[1]*m[1] + m[2]*m[2]), m[0], m[1], m[2]}
 			if ac {
+				// Each axis in phase with the strongest (acMoment): the
+				// drum's moment, all at one phase, with its up axis
+				// (-1.05) made positive.
 				for c := range 3 {
-					tru[4+c] = math.Abs(m[c])
+					tru[4+c] = -m[c]
 				}
 			}
 			for a := range 7 {
