@@ -1,10 +1,12 @@
 package report
 
 import (
+	"bytes"
 	"fmt"
 	"math"
 	"math/cmplx"
 	"math/rand/v2"
+	"strings"
 	"testing"
 
 	"undercurrent/inverse"
@@ -96,6 +98,14 @@ func TestBuildFindsObjectAloneObjfix(t *testing.T) {
 	}
 	if found != 1 {
 		t.Errorf("%d magnetised objects reported, want 1", found)
+	}
+	// The report's table does not put the object beside a conductor.
+	var html bytes.Buffer
+	if err := WriteHTML(&html, d); err != nil {
+		t.Fatal(err)
+	}
+	if strings.Contains(html.String(), "beside the conductor") || !strings.Contains(html.String(), "a magnetised object and no conductor") {
+		t.Error("report.html does not say the object is alone")
 	}
 	if d.Route != nil {
 		for _, s := range d.Route.Stations {

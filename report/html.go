@@ -372,11 +372,19 @@ func (v *view) groupRow(g *Group) groupRow {
 		r.Status = "poor or ambiguous, used with care: " + g.Problem
 	default:
 		r.Status = "ok"
+		lines, objects := 0, 0
 		for _, s := range g.Sources {
 			if s.Kind == KindDipole {
-				r.Status += ", with a magnetised object beside the conductor (fitted as a point dipole)"
-				break
+				objects++
+			} else {
+				lines++
 			}
+		}
+		switch {
+		case objects > 0 && lines > 0:
+			r.Status += ", with a magnetised object beside the conductor (fitted as a point dipole)"
+		case objects > 0:
+			r.Status += ": a magnetised object and no conductor (fitted as a point dipole)"
 		}
 	}
 	var cur, ph, dep, cov, az []string
