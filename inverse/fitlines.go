@@ -524,6 +524,10 @@ func (f *fitter) bestOf(starts []start, quick bool) (*candidate, error) {
 	return best, nil
 }
 
+// collapsedNote begins the refusal of an automatic count whose lines collapsed,
+// after which the next count is tried.
+const collapsedNote = "two lines collapsed onto one another (a line dipole); more lines tried"
+
 // collapsed reports whether two of sp's lines at x lie on one another: within 1% of
 // their distance below the sensors in offset and height, and 0.01 rad in azimuth. Such
 // a pair carrying opposite currents makes the field of a line dipole, a valley the
@@ -531,10 +535,6 @@ func (f *fitter) bestOf(starts []start, quick bool) (*candidate, error) {
 // and 3 A the same way, the three best-ranked starts all ended there (+70000 A and
 // -70000 A, RMS 15 nT) while the fourth found the pair (RMS 1.4 nT, the readings'
 // noise), and the fit reported one 12.4 A line between them.
-// collapsedNote begins the refusal of an automatic count whose lines collapsed,
-// after which the next count is tried.
-const collapsedNote = "two lines collapsed onto one another (a line dipole); more lines tried"
-
 func collapsed(sp *separable, x []float64) bool {
 	if len(sp.geom) < 2 {
 		return false
