@@ -58,6 +58,7 @@ func Build(stations []Station, set *Settings) (*Route, error) {
 		}
 	}
 	order := chain(stations)
+	bendOrder(stations, order, set)
 	r := &Route{Stations: make([]Placed, len(order))}
 	for k, idx := range order {
 		r.Stations[k] = Placed{Station: stations[idx], Index: idx}
@@ -65,8 +66,9 @@ func Build(stations []Station, set *Settings) (*Route, error) {
 	for k := 1; k < len(r.Stations); k++ {
 		r.Stations[k].Chainage = r.Stations[k-1].Chainage + horiz(r.Stations[k-1].Point, r.Stations[k].Point)
 	}
-	r.Length = r.Stations[len(r.Stations)-1].Chainage
 	orient(r.Stations)
+	cornerChainage(r.Stations, set)
+	r.Length = r.Stations[len(r.Stations)-1].Chainage
 
 	r.ModelScatter, r.ScatterWidening = modelScatter(usable(r.Stations), set)
 	st, notes := steps(r.Stations, set, r.ModelScatter, r.ScatterWidening)
