@@ -9,7 +9,12 @@
 //
 //   - steps in current: current leaving the conductor between two stations
 //     (a coating defect, a leak to earth, a tee), and stations whose current
-//     departs from both neighbours (a local disturbance, not a step);
+//     departs from both neighbours (a local disturbance, not a step); and
+//     where the conductor ends or its current leaves it for good: stations
+//     at either end of the route whose lines all lie over twice as deep as
+//     the sound stations before them with under three quarters of their
+//     current, the field past a conductor's end, are left out of the
+//     profile and the end is reported (ends.go);
 //   - cover shallower than a minimum the caller names;
 //   - stations whose fit is poor or ambiguous; when the sound stations
 //     either side (within three) differ in direction by 10 degrees or more

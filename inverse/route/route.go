@@ -70,9 +70,11 @@ func Build(stations []Station, set *Settings) (*Route, error) {
 	cornerChainage(r.Stations, set)
 	r.Length = r.Stations[len(r.Stations)-1].Chainage
 
+	ends := conductorEnds(r.Stations, set)
 	r.ModelScatter, r.ScatterWidening = modelScatter(usable(r.Stations), set)
 	st, notes := steps(r.Stations, set, r.ModelScatter, r.ScatterWidening)
 	r.Findings = append(r.Findings, st...)
+	r.Findings = append(r.Findings, ends...)
 	r.Findings = append(r.Findings, cover(r.Stations, set)...)
 	for _, f := range quality(r.Stations, set) {
 		if f.Kind == KindPoorFit && len(f.Keys) == 1 && notes[f.Keys[0]] != "" {
