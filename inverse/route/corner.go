@@ -171,3 +171,22 @@ func horizUnit(d [3]float64) (u [2]float64, ok bool) {
 	}
 	return [2]float64{d[0] / n, d[1] / n}, true
 }
+
+// outsideBends returns the usable stations of ps that do not lie strictly
+// within a bend quality names. Their currents are biased by the turned
+// arm (see steps), model error confined to the bend that acrossBends
+// deals with; let into the route-wide between-station scatter it is
+// taken for error every station shares. Round a 90 degree bend, putting
+// the corner traverse (181 A on a 60 A cable) in its place between its
+// neighbours rather than before them made two of the intervals large
+// instead of one, and the scatter's median went from 0.15 to 0.51 A.
+func outsideBends(ps []Placed, set *Settings) []*Placed {
+	bs := bends(ps, set)
+	var u []*Placed
+	for _, p := range usable(ps) {
+		if inBend(bs, p.Chainage) < 0 {
+			u = append(u, p)
+		}
+	}
+	return u
+}

@@ -71,7 +71,7 @@ func Build(stations []Station, set *Settings) (*Route, error) {
 	r.Length = r.Stations[len(r.Stations)-1].Chainage
 
 	ends := conductorEnds(r.Stations, set)
-	r.ModelScatter, r.ScatterWidening = modelScatter(usable(r.Stations), set)
+	r.ModelScatter, r.ScatterWidening = modelScatter(outsideBends(r.Stations, set), set)
 	st, notes := steps(r.Stations, set, r.ModelScatter, r.ScatterWidening)
 	r.Findings = append(r.Findings, st...)
 	r.Findings = append(r.Findings, ends...)
