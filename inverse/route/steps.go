@@ -286,6 +286,7 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64, bs 
 	}
 	runs, poor := acrossPoor(u, runs, set)
 	runs, across := acrossBends(u, runs, bs)
+	sized := map[[4]int]levels{} // by bracket and bounds: dropping a run re-sizes only its neighbours
 	size := func(r int) levels {
 		lo, hi := 0, len(u)-1
 		if r > 0 {
@@ -294,7 +295,12 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64, bs 
 		if r+1 < len(runs) {
 			hi = runs[r+1][0]
 		}
-		pl := plateau(uo, set, runs[r][0], runs[r][1], lo, hi)
+		k := [4]int{runs[r][0], runs[r][1], lo, hi}
+		pl, ok := sized[k]
+		if !ok {
+			pl = plateau(uo, set, runs[r][0], runs[r][1], lo, hi)
+			sized[k] = pl
+		}
 		if tau > 0 {
 			pl.sigmaBefore, pl.sigmaAfter = math.Hypot(pl.sigmaBefore, tau), math.Hypot(pl.sigmaAfter, tau)
 			pl.sigma = math.Hypot(pl.sigma, math.Sqrt2*tau)
