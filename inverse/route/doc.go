@@ -9,7 +9,12 @@
 //
 //   - steps in current: current leaving the conductor between two stations
 //     (a coating defect, a leak to earth, a tee), and stations whose current
-//     departs from both neighbours (a local disturbance, not a step);
+//     departs from both neighbours (a local disturbance, not a step); and
+//     where the conductor ends or its current leaves it for good: stations
+//     at either end of the route whose lines all lie over twice as deep as
+//     the sound stations before them with under three quarters of their
+//     current, the field past a conductor's end, are left out of the
+//     profile and the end is reported (ends.go);
 //   - cover shallower than a minimum the caller names;
 //   - stations whose fit is poor or ambiguous; when the sound stations
 //     either side (within three) differ in direction by 10 degrees or more
@@ -41,6 +46,12 @@
 // north) distance between successive station points:
 //
 //	c_0 = 0,  c_i = c_(i-1) + |P_i - P_(i-1)|_EN
+//
+// Round a bend that quality names (below) the chord cuts the corner:
+// there chainage runs along the first sound station's line to where it
+// meets the next sound station's line and on along that, the stations in
+// between placed on those two legs and kept in the caller's order (see
+// corner.go).
 //
 // Each station's direction is turned to point along increasing chainage and
 // its current negated when that flips it, so that currents from separately
@@ -130,7 +141,15 @@
 // gradual transition's x_f and H are then polished off the grid and their
 // uncertainty added by the delta method when that is wider. When the
 // transition's shape places x_f within the bracket the finding gives that
-// location with its sigma.
+// location with its sigma. H stays within the grid's range (0.02 to 3
+// station spacings), the step's sigma is never less than the levels'
+// covariance gives, and a fit in which the trend inflates the step's
+// variance more than maxInflation times (the levels and the slope nearly
+// collinear) is not used: the bracketing stations are. A poor station sets
+// no level alone: steps either side of a poor bracketing station are
+// merged into one across it (acrossPoor), a poor bracketing station's
+// sigma is scaled by the square root of its reduced chi-square, and a run
+// whose levels agree does not bound its neighbours' plateaus.
 //
 // The sigmas of the size and the location are checked by Monte Carlo
 // coverage (common practice): on synthetic routes with a known step the

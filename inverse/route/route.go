@@ -58,6 +58,7 @@ func Build(stations []Station, set *Settings) (*Route, error) {
 		}
 	}
 	order := chain(stations)
+	bendOrder(stations, order, set)
 	r := &Route{Stations: make([]Placed, len(order))}
 	for k, idx := range order {
 		r.Stations[k] = Placed{Station: stations[idx], Index: idx}
@@ -65,12 +66,15 @@ func Build(stations []Station, set *Settings) (*Route, error) {
 	for k := 1; k < len(r.Stations); k++ {
 		r.Stations[k].Chainage = r.Stations[k-1].Chainage + horiz(r.Stations[k-1].Point, r.Stations[k].Point)
 	}
-	r.Length = r.Stations[len(r.Stations)-1].Chainage
 	orient(r.Stations)
+	cornerChainage(r.Stations, set)
+	r.Length = r.Stations[len(r.Stations)-1].Chainage
 
-	r.ModelScatter, r.ScatterWidening = modelScatter(usable(r.Stations), set)
+	ends := conductorEnds(r.Stations, set)
+	r.ModelScatter, r.ScatterWidening = modelScatter(outsideBends(r.Stations, set), set)
 	st, notes := steps(r.Stations, set, r.ModelScatter, r.ScatterWidening)
 	r.Findings = append(r.Findings, st...)
+	r.Findings = append(r.Findings, ends...)
 	r.Findings = append(r.Findings, cover(r.Stations, set)...)
 	for _, f := range quality(r.Stations, set) {
 		if f.Kind == KindPoorFit && len(f.Keys) == 1 && notes[f.Keys[0]] != "" {
