@@ -45,7 +45,7 @@ func TestPairColumnsInResultsCSV(t *testing.T) {
 		if err1 != nil || err2 != nil || !(sd > 0) {
 			t.Fatalf("group %s: pair columns %q ± %q", r[col["group"]], v, r[col["pair_current_times_spacing_sigma_am"]])
 		}
-		acpairWithin3(t, r[col["group"]]+" current times spacing (csv)", id, 2.85, sd)
+		pairWithin3(t, r[col["group"]]+" current times spacing (csv)", id, 2.85, sd)
 		if c := r[col["current_a"]]; c != "" {
 			t.Errorf("group %s: a pair line's current_a is %q, want empty", r[col["group"]], c)
 		}

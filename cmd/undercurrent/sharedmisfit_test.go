@@ -39,7 +39,7 @@ func TestLocateSharedMisfit(t *testing.T) {
 	mustCLI(t, "simulate", "--seed", "2", two, "-o", log2)
 	// The pair is fitted with one line (--count 1): the automatic count now
 	// reports it as a go-and-return pair whose fits describe the field
-	// (TestAcpairScenarios), and the one-line fits are the shared misfit.
+	// (TestPairScenarios), and the one-line fits are the shared misfit.
 	for _, c := range []struct {
 		log   string
 		warn  bool

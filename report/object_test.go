@@ -21,13 +21,13 @@ import (
 // inverse.FitLines with the count chosen automatically and the noise
 // estimated, as locate does by default.
 
-// objfixEarth is the uniform Earth field of the fixtures, nT.
-var objfixEarth = [3]float64{-150, 19200, -45100}
+// objectEarth is the uniform Earth field of the fixtures, nT.
+var objectEarth = [3]float64{-150, 19200, -45100}
 
-// objfixTraverse returns the readings of one traverse at east x, sensors at
+// objectTraverse returns the readings of one traverse at east x, sensors at
 // height 0, from north -half to half every step m, of the field field(r)
 // (tesla) plus the Earth's and noise nT per axis; Sigma is left 0.
-func objfixTraverse(rng *rand.Rand, x, half, step, noise float64, field func(r [3]float64) [3]float64) *inverse.Problem {
+func objectTraverse(rng *rand.Rand, x, half, step, noise float64, field func(r [3]float64) [3]float64) *inverse.Problem {
 	p := &inverse.Problem{}
 	n := int(math.Round(half / step))
 	for k := -n; k <= n; k++ {
@@ -35,7 +35,7 @@ func objfixTraverse(rng *rand.Rand, x, half, step, noise float64, field func(r [
 		b := field(r)
 		var m [3]float64
 		for a := range m {
-			m[a] = b[a]*1e9 + objfixEarth[a] + noise*rng.NormFloat64()
+			m[a] = b[a]*1e9 + objectEarth[a] + noise*rng.NormFloat64()
 		}
 		p.Points = append(p.Points, r)
 		p.Fields = append(p.Fields, m)
@@ -43,8 +43,8 @@ func objfixTraverse(rng *rand.Rand, x, half, step, noise float64, field func(r [
 	return p
 }
 
-// objfixFit fits each problem as locate does, keyed T01, T02, ...
-func objfixFit(t *testing.T, probs []*inverse.Problem) []Fit {
+// objectFits fits each problem as locate does, keyed T01, T02, ...
+func objectFits(t *testing.T, probs []*inverse.Problem) []Fit {
 	t.Helper()
 	var fits []Fit
 	for i, p := range probs {
@@ -65,17 +65,17 @@ func objfixFit(t *testing.T, probs []*inverse.Problem) []Fit {
 // reported: the search found the object, but with it the refitted line
 // carried no current, which the rule for an object beside a conductor
 // refused. The truth: one object where it lies, and no conductor.
-func TestBuildFindsObjectAloneObjfix(t *testing.T) {
+func TestBuildFindsObjectAlone(t *testing.T) {
 	obj := [3]float64{26, 1, -1.1}
 	moment := [3]float64{0, 1.5, -3.5}
 	rng := rand.New(rand.NewPCG(31, 131))
 	var probs []*inverse.Problem
 	for i := range 13 {
-		probs = append(probs, objfixTraverse(rng, 6+4*float64(i), 8, 0.1, 1, func(r [3]float64) [3]float64 {
+		probs = append(probs, objectTraverse(rng, 6+4*float64(i), 8, 0.1, 1, func(r [3]float64) [3]float64 {
 			return inverse.Dipole{Pos: obj}.Field(r, moment)
 		}))
 	}
-	d, err := Build(Document{}, objfixFit(t, probs), &BuildSettings{SensorHeight: 0.3, MinCover: 0.6})
+	d, err := Build(Document{}, objectFits(t, probs), &BuildSettings{SensorHeight: 0.3, MinCover: 0.6})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -143,7 +143,7 @@ func checkObjectBelowGround(t *testing.T, f Finding, obj [3]float64, h float64, 
 // and 31 m, 14 and 24 m beyond the traverses, with moments of 20,000 and
 // 56,000 A m^2 (and one 2.8 m off a traverse, 1.3 m deep). The scene holds
 // no magnetised object: none may be reported.
-func TestBuildNoObjectBeyondReadingsObjfix(t *testing.T) {
+func TestBuildNoObjectBeyondReadings(t *testing.T) {
 	z := -1.2
 	feedIn := inverse.Segment{A: [3]float64{-300, 0, z}, B: [3]float64{30, 0, z}}
 	feedOut := inverse.Segment{A: [3]float64{30, 0, z}, B: [3]float64{400, 0, z}}
@@ -155,9 +155,9 @@ func TestBuildNoObjectBeyondReadingsObjfix(t *testing.T) {
 	rng := rand.New(rand.NewPCG(21, 121))
 	var probs []*inverse.Problem
 	for i := range 15 {
-		probs = append(probs, objfixTraverse(rng, 4+4*float64(i), 7, 0.1, 2, field))
+		probs = append(probs, objectTraverse(rng, 4+4*float64(i), 7, 0.1, 2, field))
 	}
-	d, err := Build(Document{}, objfixFit(t, probs), &BuildSettings{SensorHeight: 0.3})
+	d, err := Build(Document{}, objectFits(t, probs), &BuildSettings{SensorHeight: 0.3})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -175,7 +175,7 @@ func TestBuildNoObjectBeyondReadingsObjfix(t *testing.T) {
 	}
 }
 
-// TestObjectCredibleObjfix checks the bounds on an object before it is
+// TestObjectCredible checks the bounds on an object before it is
 // reported (dipoleSearch.credible) on one traverse, north -6 to 6 m at
 // east 0, sensors at height 0: an object 1 m down beside it is credible;
 // one 5 m north of its end (over twice its depth) is not; nor one whose
@@ -183,7 +183,7 @@ func TestBuildNoObjectBeyondReadingsObjfix(t *testing.T) {
 // its strongest (67,000 nT), one of 10^5 A m^2: an infinitely permeable
 // sphere of radius 1 m there carries 4 pi r^3 B / mu0 = 670 A m^2, ten
 // times that (remanence allowed) is 6,700 A m^2.
-func TestObjectCredibleObjfix(t *testing.T) {
+func TestObjectCredible(t *testing.T) {
 	p := &inverse.Problem{}
 	for k := -24; k <= 24; k++ {
 		p.Points = append(p.Points, [3]float64{0, 0.25 * float64(k), 0})
@@ -216,7 +216,7 @@ func TestObjectCredibleObjfix(t *testing.T) {
 // strongest axis (up, -1.05 A m^2: psi = phi + 180 degrees) is -m. Before,
 // each axis's modulus was reported, (0.5, 0.3, 1.05), the up axis's sign
 // lost against the others'.
-func TestBuildACMomentSignObjfix(t *testing.T) {
+func TestBuildACMomentSign(t *testing.T) {
 	cable := inverse.Line{Point: [3]float64{0, 0, -drumDepth}, Dir: [3]float64{1, 0, 0}}
 	ci, cm := cmplx.Rect(drumCurrent, 0.3), cmplx.Rect(1, -0.4)
 	rng := rand.New(rand.NewPCG(17, 71))

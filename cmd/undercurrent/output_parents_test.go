@@ -9,10 +9,10 @@ import (
 	"testing"
 )
 
-// TestStageDirCalfixParents: stageDir makes the missing parents of its
+// TestStageDirParents: stageDir makes the missing parents of its
 // directory and, when the run fails or is interrupted, removes the ones
 // it made (and only those), so nothing partial is left behind.
-func TestStageDirCalfixParents(t *testing.T) {
+func TestStageDirParents(t *testing.T) {
 	root := t.TempDir()
 	keep := filepath.Join(root, "kept")
 	if err := os.Mkdir(keep, 0o755); err != nil {
@@ -52,10 +52,10 @@ func TestStageDirCalfixParents(t *testing.T) {
 	}
 }
 
-// TestLocateCalfixOutParents: locate -o and demo -o make missing parent
+// TestLocateOutParents: locate -o and demo -o make missing parent
 // directories; a locate that fails leaves none; a parent that is a file is
 // refused before the work, naming it.
-func TestLocateCalfixOutParents(t *testing.T) {
+func TestLocateOutParents(t *testing.T) {
 	dir := t.TempDir()
 	log := simulatedLog(t, dir, "line.csv")
 	res := filepath.Join(dir, "fenwick", "2026-12-02", "res")

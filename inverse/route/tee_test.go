@@ -65,7 +65,7 @@ func teeSteps(r *Route) []Finding {
 	return append(findings(r, KindCurrentStep), findings(r, KindCurrentChange)...)
 }
 
-// TestRtfixLevelsDeterminedAtTee: upstream of the tee the feeder carries
+// TestLevelsDeterminedAtTee: upstream of the tee the feeder carries
 // 40 A throughout (Kirchhoff's current law: nothing leaves before the
 // junction), and its stations read 40.02-40.16 A. A step sized there from
 // two levels and a trend that cancel (7342 and -7262 A, a "fall of
@@ -73,7 +73,7 @@ func teeSteps(r *Route) []Finding {
 // current leaves there, and a difference of two levels each ± 1404 A
 // cannot be known to ± 0.26 A. Every step's levels must lie among the
 // currents the stations read, within a few of the levels' own sigmas.
-func TestRtfixLevelsDeterminedAtTee(t *testing.T) {
+func TestLevelsDeterminedAtTee(t *testing.T) {
 	for _, c := range []struct {
 		name string
 		st   []Station
@@ -103,7 +103,7 @@ func TestRtfixLevelsDeterminedAtTee(t *testing.T) {
 	}
 }
 
-// TestRtfixPoorStationSetsNoLevel: T08, the fit 2 m past the tee with a
+// TestPoorStationSetsNoLevel: T08, the fit 2 m past the tee with a
 // reduced chi-square of 1310, read 49.5 A, more than either side carries.
 // It was the only "after" level of a rise of 19.0 A into it and the only
 // "before" level of a fall of 24.54 ± 0.80 A out of it. By Kirchhoff's
@@ -112,7 +112,7 @@ func TestRtfixLevelsDeterminedAtTee(t *testing.T) {
 // stations beside the tee read a few tenths of an ampere off (the branch's
 // field, which one straight line cannot fit), so the size is checked to
 // 4% of the 15 A rather than to its sigma.
-func TestRtfixPoorStationSetsNoLevel(t *testing.T) {
+func TestPoorStationSetsNoLevel(t *testing.T) {
 	for _, c := range []struct {
 		name string
 		st   []Station
@@ -153,7 +153,7 @@ func TestRtfixPoorStationSetsNoLevel(t *testing.T) {
 	}
 }
 
-// TestRtfixWideTransitionNotDetermined: the levels fit that gave the
+// TestWideTransitionNotDetermined: the levels fit that gave the
 // 14603.70 A "fall" on the seed-2 fixture, T01-T06 with x_f at 5.512 m and
 // a transition 442 m wide on stations 4 m apart: f(x) is then linear over
 // the stations to a part in 10^4, the two levels and the slope are
@@ -161,7 +161,7 @@ func TestRtfixPoorStationSetsNoLevel(t *testing.T) {
 // not determined; the same stations with a sharp step are. And whatever
 // the fit, the step's sigma is at least what the levels' covariance gives
 // (var(a - b) = var a + var b - 2 cov(a, b)).
-func TestRtfixWideTransitionNotDetermined(t *testing.T) {
+func TestWideTransitionNotDetermined(t *testing.T) {
 	var pts []lvPoint
 	for _, s := range teeSeed2()[:6] {
 		pts = append(pts, lvPoint{x: 4 * float64(len(pts)), y: s.Current, s: s.CurrentSigma})

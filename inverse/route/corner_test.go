@@ -43,7 +43,7 @@ func bend90() []Station {
 	}
 }
 
-// TestRtfixChainageRoundBend: chainage is the distance along the cable.
+// TestChainageRoundBend: chainage is the distance along the cable.
 // Traverse k (from 1) was walked 3(k-1) m along it from T01, so its
 // chainage is 3(k-1) m: T10, at the vertex, 27 m; T16, two thirds of the
 // way up the second arm, 45 m; the fault at (30, 20), 27 + 20 = 47 m.
@@ -52,7 +52,7 @@ func bend90() []Station {
 // before T09. The corner traverse T10 (181 A on a 60 A cable) and its
 // neighbours within the bend stay out of the route-wide between-station
 // scatter: let in, they tripled it.
-func TestRtfixChainageRoundBend(t *testing.T) {
+func TestChainageRoundBend(t *testing.T) {
 	r, err := Build(bend90(), &Settings{SensorHeight: 0.3})
 	if err != nil {
 		t.Fatal(err)
@@ -91,7 +91,7 @@ func TestRtfixChainageRoundBend(t *testing.T) {
 	}
 }
 
-// TestRtfixBendOutOfScatter: the between-station scatter is the model
+// TestBendOutOfScatter: the between-station scatter is the model
 // error every station shares; the stations within a named bend (T09-T11
 // here, inside T08-T12: fits of one straight line to a turning cable,
 // 70-181 A on a 60 A cable) carry error of their own, which steps across
@@ -99,7 +99,7 @@ func TestRtfixChainageRoundBend(t *testing.T) {
 // 0.51 A once the corner traverse took its place between its neighbours,
 // and the report then took the bend's arms at T08 and T12 for magnetised
 // objects. It must be that of the same route without them.
-func TestRtfixBendOutOfScatter(t *testing.T) {
+func TestBendOutOfScatter(t *testing.T) {
 	r, err := Build(bend90(), &Settings{SensorHeight: 0.3})
 	if err != nil {
 		t.Fatal(err)

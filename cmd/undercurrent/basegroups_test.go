@@ -27,7 +27,7 @@ func writeGroupedBase(t *testing.T, path string, b *ingest.Samples, name func(i 
 	}
 }
 
-// TestLocateBaseGroupsCalfix: a base log is one magnetometer in one
+// TestLocateBaseGroups: a base log is one magnetometer in one
 // place. Two sensors logged together in one base file (a sensor column
 // whose values overlap in time, their offsets 150 nT apart) are refused:
 // the correction jumped between them and the current's sigma grew about
@@ -36,7 +36,7 @@ func writeGroupedBase(t *testing.T, path string, b *ingest.Samples, name func(i 
 // the column do; a column of one value is no group. A survey log without
 // its position columns given as --base is refused: its readings are the
 // survey's own (before, every fit found "no anomaly").
-func TestLocateBaseGroupsCalfix(t *testing.T) {
+func TestLocateBaseGroups(t *testing.T) {
 	dir := t.TempDir()
 	survey, basePath, base := kestrelWithBase(t, dir)
 	want := baseLocateDoc(t, "--base", basePath, survey)

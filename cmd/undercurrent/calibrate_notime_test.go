@@ -33,12 +33,12 @@ func dropFirstColumn(t *testing.T, src, dst string, header []string) string {
 	return dst
 }
 
-// TestCalibrateCalfixNoTimeColumn: no calibration method uses time, so a
+// TestCalibrateNoTimeColumn: no calibration method uses time, so a
 // spin, flip or zero-field log of the field columns alone is calibrated,
 // with the same offsets as the same log with its times; a spike is named
 // by its reading's number, having no time. Commands that need time
 // still refuse such a log, naming the file and the missing column.
-func TestCalibrateCalfixNoTimeColumn(t *testing.T) {
+func TestCalibrateNoTimeColumn(t *testing.T) {
 	dir := t.TempDir()
 	withTime := filepath.Join(dir, "harrow-fen-spin.csv")
 	offset := [3]float64{640, -215, 90}
@@ -125,13 +125,13 @@ func TestCalibrateCalfixNoTimeColumn(t *testing.T) {
 	}
 }
 
-// TestCalibrateCalfixZeroUnit: a log inside a shield reads near zero in
+// TestCalibrateZeroUnit: a log inside a shield reads near zero in
 // any unit, so a zero-field log whose columns state no unit is refused
 // with how to give it; given with --unit, in the column names, or by
 // undercurrent's canonical form (nT), the offsets are the fixture's
 // (written in µT: 1 µT = 1000 nT, SI). Read as nT they were 1000 times
 // too small.
-func TestCalibrateCalfixZeroUnit(t *testing.T) {
+func TestCalibrateZeroUnit(t *testing.T) {
 	dir := t.TempDir()
 	write := func(name, header string) string {
 		var b strings.Builder

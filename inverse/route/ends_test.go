@@ -40,14 +40,14 @@ func segEast(t *testing.T, key string) float64 {
 	return 6 + 4*float64(k-1)
 }
 
-// TestRtfixConductorEnds: beyond the end of a half-line a traverse sees
+// TestConductorEnds: beyond the end of a half-line a traverse sees
 // only the field of its end (Biot-Savart over the half-line: the fraction
 // (1 - d/sqrt(d^2 + h^2))/2 of the full line's field at d past the end),
 // which one straight line fits as a deeper, weaker conductor. The 10 A
 // leave the cable at east 30 m, between T07 (30 m) and T08 (34 m); the
 // traverses past it have no conductor under them and must not enter the
 // profile as its continuation.
-func TestRtfixConductorEnds(t *testing.T) {
+func TestConductorEnds(t *testing.T) {
 	r, err := Build(segEnd(), &Settings{SensorHeight: 0.3})
 	if err != nil {
 		t.Fatal(err)
@@ -78,12 +78,12 @@ func TestRtfixConductorEnds(t *testing.T) {
 	}
 }
 
-// TestRtfixDiveOrLossIsNoEnd: a conductor that dives keeps its current
+// TestDiveOrLossIsNoEnd: a conductor that dives keeps its current
 // (Kirchhoff's current law: nothing leaves a conductor that only changes
 // depth), and one that loses current at a fault keeps its depth; neither
 // ends. Invented stations: 10 A at 1.1 m diving to 4.5 m over the last
 // four of twelve stations; and 10 A falling to 5 A at a fault halfway.
-func TestRtfixDiveOrLossIsNoEnd(t *testing.T) {
+func TestDiveOrLossIsNoEnd(t *testing.T) {
 	mk := func(depth func(i int) float64, cur func(i int) float64) []Station {
 		st := make([]Station, 12)
 		for i := range st {

@@ -8,7 +8,7 @@ import (
 	"testing"
 )
 
-// TestAcpairUnresolvedPair: a 50 Hz go-and-return pair 0.3 m apart at 1.5 m (cores at
+// TestPairUnresolved: a 50 Hz go-and-return pair 0.3 m apart at 1.5 m (cores at
 // east -0.15 and +0.15 m), read along one 8 m traverse 0.3 m up with 2 nT of noise per
 // phasor component (a 20 nT sensor averaged over its windows). The readings are the
 // exact field of the two infinite filaments (Biot-Savart, DOMAIN.md "Infinite straight
@@ -21,7 +21,7 @@ import (
 // sigma of the truth, and marks the lines' own currents and positions not identifiable;
 // with Count 2 the same. I d is half the difference of the currents times the spacing:
 // (10 + 9)/2 x 0.3 = 2.85 A m for 10 A out and 9 A back, 3 A m balanced.
-func TestAcpairUnresolvedPair(t *testing.T) {
+func TestPairUnresolved(t *testing.T) {
 	pts := traverse(80, -4, 4, 5, 0.3)
 	lines := []Line{
 		{Point: [3]float64{-0.15, 0, -1.5}, Dir: [3]float64{0, 1, 0}},
@@ -71,10 +71,10 @@ func TestAcpairUnresolvedPair(t *testing.T) {
 	}
 }
 
-// TestAcpairResolvedPairUnchanged: where the current and the spacing are resolved (a
+// TestPairResolvedUnchanged: where the current and the spacing are resolved (a
 // cable and its return 0.6 m apart at 0.9 m carrying +40 A and -37 A, as
 // TestTwoConductors), no pair is reported and the lines keep their currents and sigmas.
-func TestAcpairResolvedPairUnchanged(t *testing.T) {
+func TestPairResolvedUnchanged(t *testing.T) {
 	truth := []Line{
 		{Point: [3]float64{-0.3, 0, -0.9}, Dir: [3]float64{0, 1, 0}},
 		{Point: [3]float64{0.3, 0, -0.9}, Dir: [3]float64{0, 1, 0}},

@@ -8,8 +8,8 @@ import (
 	"testing"
 )
 
-// acpairDoc is what TestAcpairScenarios reads of the result document.
-type acpairDoc struct {
+// pairDoc is what TestPairScenarios reads of the result document.
+type pairDoc struct {
 	Groups []struct {
 		Key     string `json:"key"`
 		OK      bool   `json:"ok"`
@@ -36,7 +36,7 @@ type acpairDoc struct {
 	} `json:"findings"`
 }
 
-// TestAcpairScenarios: the open scenarios of a 50 Hz go-and-return pair, cores
+// TestPairScenarios: the open scenarios of a 50 Hz go-and-return pair, cores
 // 0.3 m apart at 1.5 m under 20 nT readings (testdata/scenarios/open/
 // ac-pair-net1A.toml, 10 A out and 9 A back; ac-pair-balanced.toml, 10 A each
 // way), on the seeds the review used. Each traverse was reported as one ~1 A
@@ -48,7 +48,7 @@ type acpairDoc struct {
 // within three sigma, the net current within three sigma of 1 A (net1A), the
 // current and the spacing marked not identifiable, with no "no current found";
 // with --count 2 the same.
-func TestAcpairScenarios(t *testing.T) {
+func TestPairScenarios(t *testing.T) {
 	for _, c := range []struct {
 		file, seed string
 		id, net    float64
@@ -61,7 +61,7 @@ func TestAcpairScenarios(t *testing.T) {
 				dir := t.TempDir()
 				log := filepath.Join(dir, "pair.arrows")
 				mustCLI(t, "simulate", "--seed", c.seed, filepath.Join("..", "..", "testdata", "scenarios", "open", c.file), "-o", log)
-				doc := locateInto[acpairDoc](t, "--freq", "50", "--group-by", "group", "--reference-z", "0", "--count", count, log)
+				doc := locateInto[pairDoc](t, "--freq", "50", "--group-by", "group", "--reference-z", "0", "--count", count, log)
 				if len(doc.Groups) != 7 {
 					t.Fatalf("%d groups, want 7", len(doc.Groups))
 				}
@@ -75,11 +75,11 @@ func TestAcpairScenarios(t *testing.T) {
 						t.Errorf("%s: ok %v, problem %q", g.Key, g.OK, g.Problem)
 					}
 					// The traverses cross the pair at east 0, centred on it.
-					acpairWithin3(t, g.Key+" centre east", p.Point[0], 0, p.OffsetSigma)
-					acpairWithin3(t, g.Key+" centre depth", p.Depth, 1.5, p.DepthSigma)
-					acpairWithin3(t, g.Key+" current times spacing", p.ID, c.id, p.IDSigma)
+					pairWithin3(t, g.Key+" centre east", p.Point[0], 0, p.OffsetSigma)
+					pairWithin3(t, g.Key+" centre depth", p.Depth, 1.5, p.DepthSigma)
+					pairWithin3(t, g.Key+" current times spacing", p.ID, c.id, p.IDSigma)
 					if c.net > 0 {
-						acpairWithin3(t, g.Key+" net current", p.Net, c.net, p.NetSigma)
+						pairWithin3(t, g.Key+" net current", p.Net, c.net, p.NetSigma)
 					}
 					if strings.Join(p.Unidentifiable, ",") != "current,spacing" {
 						t.Errorf("%s: pair unidentifiable %q, want current and spacing", g.Key, p.Unidentifiable)
@@ -98,8 +98,8 @@ func TestAcpairScenarios(t *testing.T) {
 	}
 }
 
-// acpairWithin3 fails the test unless got is within three sigma of want.
-func acpairWithin3(t *testing.T, name string, got, want, sigma float64) {
+// pairWithin3 fails the test unless got is within three sigma of want.
+func pairWithin3(t *testing.T, name string, got, want, sigma float64) {
 	t.Helper()
 	if !(sigma > 0) || math.Abs(got-want) > 3*sigma {
 		t.Errorf("%s = %.5g ± %.3g, truth %.5g (not within 3 sigma)", name, got, sigma, want)
