@@ -56,6 +56,19 @@ func diffNoise(f [][3]float64) float64 {
 // madNormal is the median of |Z| for a standard normal Z, Phi^-1(0.75).
 const madNormal = 0.6744897501960817
 
+// measuredNoise is the group's noise measured apart from its fit, nT: for
+// AC the median of its windows' own noise, for DC its diffNoise; 0 when
+// not measured. Each group is judged against its own: traverses beside a
+// road read with four times the noise of the rest were named as fits that
+// do not describe the field when judged against the survey's median
+// (found in review).
+func (g *group) measuredNoise(ac bool) float64 {
+	if ac {
+		return medianOf(g.wsigma)
+	}
+	return diffNoise(g.fields)
+}
+
 // dcMeasuredNoise is the median over the DC groups of each group's
 // diffNoise, nT; 0 for an AC survey or when no group has enough readings.
 func dcMeasuredNoise(sv *survey) float64 {

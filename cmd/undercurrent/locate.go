@@ -405,6 +405,7 @@ type group struct {
 	ramp    *groupRamp      // AC: the phase ramp fitted (phaseramp.go); nil for none
 	res0    *inverse.Result // AC: with a ramp, the fit without one
 	windowN []float64       // AC: each window's sample count
+	wsigma  []float64       // AC: the windows' noise per axis (calibrate.Window.Sigma), nT
 	hint    float64         // AC: the offset of the group's own frequency, Hz, where the ramp search starts; 0 for none
 }
 
@@ -1144,6 +1145,7 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 		for _, v := range w.Sigma {
 			if v > 0 {
 				sv.windowSigma = append(sv.windowSigma, v)
+				g.wsigma = append(g.wsigma, v)
 			}
 		}
 		g.hint = hints[w.Group]
@@ -1337,6 +1339,7 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 		if g.ramp != nil {
 			fits[i].PhaseRampHz, fits[i].PhaseRampSigmaHz = g.ramp.hz, g.ramp.sigma
 		}
+		fits[i].MeasuredNoise = g.measuredNoise(sv.ac)
 	}
 	// report.Build takes no context; its along-route analysis (the dipole
 	// refits above all) can take seconds, so an interrupt is not kept
