@@ -5,7 +5,9 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
+	"math"
 	"math/cmplx"
+	"sort"
 
 	"github.com/nats-io/nats.go/jetstream"
 )
@@ -47,9 +49,10 @@ func (w *assetWorker) setGeometry(conds []ConductorConfig) error {
 		return fmt.Errorf("live: asset %s: %w", w.asset.Name, err)
 	}
 	w.proc.est = est
-	w.proc.names = w.proc.names[:0]
+	w.proc.names, w.proc.dirs = w.proc.names[:0], w.proc.dirs[:0]
 	for _, c := range conds {
 		w.proc.names = append(w.proc.names, c.Name)
+		w.proc.dirs = append(w.proc.dirs, c.currentDir())
 	}
 	return nil
 }
@@ -72,6 +75,7 @@ func (w *assetWorker) commission(win *window) error {
 	pos := map[int][3]float64{}
 	fields := map[int][3]float64{}
 	phasors := map[int][3]complex128{}
+	variance := map[int]float64{} // sum of the windows' reading variances, nT^2
 	reds := make([]*reduced, len(w.pending))
 	// AC phasors are referred to cos(2 pi f t): when the grid is off the
 	// site's frequency their phase turns from window to window, so each
@@ -107,6 +111,11 @@ func (w *assetWorker) commission(win *window) error {
 		for j, si := range r.used {
 			counts[si]++
 			pos[si] = r.in.Points[j]
+			sig := r.in.Sigma
+			if j < len(r.in.Sigmas) {
+				sig = r.in.Sigmas[j]
+			}
+			variance[si] += sig * sig
 			if r.in.Fields != nil {
 				f := fields[si]
 				for k := range 3 {
@@ -121,14 +130,21 @@ func (w *assetWorker) commission(win *window) error {
 				phasors[si] = p
 			}
 		}
-		sum.Sigma = r.in.Sigma
 	}
+	// The mean of n readings of sigmas s_k has sigma sqrt(sum s_k^2) / n:
+	// the commissioning fit weighs its readings, and tells a resolved
+	// line from an unresolved pair, by that, not by one window's noise.
+	var perWindow []float64 // each sensor's RMS window noise
 	for si := range w.asset.Sensors {
 		n := counts[si]
 		if n == 0 {
 			continue
 		}
 		sum.Points = append(sum.Points, pos[si])
+		if v := variance[si]; v > 0 {
+			sum.Sigmas = append(sum.Sigmas, math.Sqrt(v)/float64(n))
+			perWindow = append(perWindow, math.Sqrt(v/float64(n)))
+		}
 		if w.asset.Mode == "ac" {
 			p := phasors[si]
 			for k := range 3 {
@@ -143,7 +159,23 @@ func (w *assetWorker) commission(win *window) error {
 			sum.Fields = append(sum.Fields, f)
 		}
 	}
-	conds, err := w.svc.commissioner.Commission(&sum, len(w.asset.Conductors))
+	if len(sum.Sigmas) == len(sum.Points) && len(sum.Sigmas) > 0 {
+		// One value for the fit: the median sensor's, as reduce does.
+		sorted := append([]float64(nil), sum.Sigmas...)
+		sort.Float64s(sorted)
+		sum.Sigma = sorted[len(sorted)/2]
+		sort.Float64s(perWindow)
+		sum.WindowSigma = perWindow[len(perWindow)/2]
+	} else {
+		sum.Sigmas = nil
+	}
+	conds, err := w.svc.commissioner.Commission(&sum, w.asset.Conductors)
+	var site *needsSiteError
+	if errors.As(err, &site) {
+		// More data would not help (and averaging on could take in a
+		// change of the currents): stop until the site file is mended.
+		return fmt.Errorf("live: asset %s: commissioning: %w", w.asset.Name, err)
+	}
 	if err != nil {
 		w.log.Warn("commissioning failed; trying again with more data", "err", err, "windows", len(w.pending))
 		if len(w.pending) > 20*int(w.asset.Commission.Seconds()/w.asset.Window.Seconds()+1) {
@@ -151,8 +183,8 @@ func (w *assetWorker) commission(win *window) error {
 		}
 		return nil
 	}
-	if len(conds) == len(w.asset.Conductors) {
-		for i := range conds {
+	if len(conds) == len(w.asset.Conductors) && !sameNames(conds, w.asset.Conductors) {
+		for i := range conds { // a commissioner that does not name them
 			conds[i].Name = w.asset.Conductors[i].Name
 		}
 	}
@@ -164,6 +196,9 @@ func (w *assetWorker) commission(win *window) error {
 		return fmt.Errorf("live: asset %s: store geometry: %w", w.asset.Name, err)
 	}
 	w.log.Info("asset commissioned", "conductors", len(conds), "from", g.From, "to", g.To)
+	for _, c := range conds {
+		w.log.Info("commissioned conductor", "name", c.Name, "kind", c.Kind, "point", c.Point, "direction", c.Direction)
+	}
 	if err := w.setGeometry(conds); err != nil {
 		return err
 	}
@@ -175,4 +210,22 @@ func (w *assetWorker) commission(win *window) error {
 		}
 	}
 	return nil
+}
+
+// sameNames reports whether a and b hold the same conductor names, in any
+// order.
+func sameNames(a, b []ConductorConfig) bool {
+	n := map[string]int{}
+	for _, c := range a {
+		n[c.Name]++
+	}
+	for _, c := range b {
+		n[c.Name]--
+	}
+	for _, v := range n {
+		if v != 0 {
+			return false
+		}
+	}
+	return true
 }

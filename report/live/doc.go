@@ -154,7 +154,8 @@
 // # Alarms
 //
 // over-current (|I| above max_current), imbalance (|sum of the balance
-// conductors' current phasors| above max_imbalance: go and return should
+// conductors' current phasors| above max_imbalance, each taken along the
+// first balance conductor's direction: go and return should
 // cancel; a difference is current leaking to earth), step (change between
 // consecutive windows above step), silent (no samples from a sensor in a
 // window; with no subject, no data from any sensor for silent_after of

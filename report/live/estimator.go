@@ -20,6 +20,11 @@ type SolveInput struct {
 	// component, nT (the service sets it with Sigma, from each sensor's
 	// sample count); an estimator should weight the readings by it.
 	Sigmas []float64
+	// WindowSigma, for commissioning (where the readings are means over
+	// many windows), is one window's reading noise, nT: a commissioned
+	// geometry should miss the mean readings by much less, or every
+	// window's fit would be degraded. 0: not known.
+	WindowSigma float64
 }
 
 // SolveOutput holds the strengths in the order of the conductors.
@@ -32,10 +37,12 @@ type SolveOutput struct {
 }
 
 // Commissioner fits the conductor geometry from commissioning data (the
-// mean readings of the first minutes). count is the number of conductors
-// expected, 0 to choose.
+// mean readings of the first minutes). stated are the site file's
+// conductors of the asset (their names, and where given their rough
+// point and direction); the result should hold one conductor per stated
+// one, named after it (none stated: as many as the data show).
 type Commissioner interface {
-	Commission(in *SolveInput, count int) ([]ConductorConfig, error)
+	Commission(in *SolveInput, stated []ConductorConfig) ([]ConductorConfig, error)
 }
 
 // NewEstimatorFunc builds an Estimator for a geometry.

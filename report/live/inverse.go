@@ -1,6 +1,7 @@
 package live
 
 import (
+	"errors"
 	"fmt"
 	"gonum.org/v1/gonum/mat"
 	"math"
@@ -204,20 +205,34 @@ func (e *inverseEstimator) solveWeighted(in *SolveInput) (*SolveOutput, error) {
 // commissioning readings.
 type InverseCommissioner struct{}
 
-// Commission fits count lines (0: chosen by BIC) and returns them as
-// conductors named c1, c2, ... strongest first.
-func (InverseCommissioner) Commission(in *SolveInput, count int) ([]ConductorConfig, error) {
+// Commission fits as many lines as the site file lists conductors (none
+// listed: the count chosen by BIC) and returns them named after the
+// conductors, matched by geometry, with their directions made consistent;
+// see commissionLines for the rules.
+func (InverseCommissioner) Commission(in *SolveInput, stated []ConductorConfig) ([]ConductorConfig, error) {
 	p := &inverse.Problem{Points: in.Points, Fields: in.Fields, Phasors: in.Phasors, Sigma: in.Sigma}
-	res, err := inverse.FitLines(p, &inverse.Settings{Count: count})
+	res, err := inverse.FitLines(p, &inverse.Settings{Count: len(stated)})
+	var conds []ConductorConfig
+	if err == nil {
+		conds, err = commissionLines(p, res, stated)
+	}
+	if err == nil {
+		err = commissionMisfit(p, in.WindowSigma, conds)
+	}
+	var site *needsSiteError
+	if err != nil && !errors.As(err, &site) && len(stated) == 2 && stated[0].pointSet {
+		// Two conductors with their points given (a go and its return):
+		// fit the pair at the points' spacing from where the site file
+		// puts it, for when the free fit went astray.
+		if alt, aerr := commissionStatedPair(p, stated); aerr == nil && commissionMisfit(p, in.WindowSigma, alt) == nil {
+			return alt, nil
+		}
+	}
+	if err != nil && len(stated) > 1 && !stated[0].pointSet && !errors.As(err, &site) {
+		err = fmt.Errorf("%w; giving each [[asset.conductor]] its point (where it runs, roughly) lets a go-and-return pair be fitted at its spacing", err)
+	}
 	if err != nil {
 		return nil, err
 	}
-	var out []ConductorConfig
-	for i, s := range res.Sources {
-		out = append(out, ConductorConfig{Name: fmt.Sprintf("c%d", i+1), Kind: "line", Point: s.Point, Direction: s.Dir})
-	}
-	if len(out) == 0 {
-		return nil, fmt.Errorf("the fit found no conductor")
-	}
-	return out, nil
+	return conds, nil
 }

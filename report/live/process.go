@@ -10,12 +10,15 @@ import (
 
 // processor turns closed windows of one asset into estimates and alarms.
 type processor struct {
-	asset  *AssetConfig
-	cals   []*calibrate.Calibration // per sensor, nil when uncalibrated
-	rot    [][3][3]float64          // per sensor, sensor frame -> ENU
-	est    Estimator                // nil while commissioning
-	names  []string                 // conductor names in estimator order
-	prev   map[string]float64       // previous window's currents (step alarm)
+	asset *AssetConfig
+	cals  []*calibrate.Calibration // per sensor, nil when uncalibrated
+	rot   [][3][3]float64          // per sensor, sensor frame -> ENU
+	est   Estimator                // nil while commissioning
+	names []string                 // conductor names in estimator order
+	// dirs are the directions along which the conductors' currents are
+	// signed, in estimator order (nil: all taken as one direction).
+	dirs   [][3]float64
+	prev   map[string]float64 // previous window's currents (step alarm)
 	worker string
 	// revision is the asset's read revision, copied into every estimate
 	// and alarm; the worker keeps it equal to its checkpoint's.
@@ -369,11 +372,23 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 		p.prev[name] = c.Current
 	}
 	if len(a.Alarms.Balance) > 1 && a.Alarms.MaxImbalance > 0 {
+		// The currents are summed along one direction, the first balance
+		// conductor's: a conductor whose direction points the other way
+		// (a return described in the direction its current flows back)
+		// counts with its sign turned, so a balanced go and return sum
+		// to zero however their directions are written.
 		var sum complex128
 		all := true
-		for _, n := range a.Alarms.Balance {
+		var ref [3]float64
+		for k, n := range a.Alarms.Balance {
 			v, ok := byName[n]
 			all = all && ok
+			d := p.dirOf(n)
+			if k == 0 {
+				ref = d
+			} else if d[0]*ref[0]+d[1]*ref[1]+d[2]*ref[2] < 0 {
+				v = -v
+			}
 			sum += v
 		}
 		if imb := cmplxAbs(sum); all && imb > a.Alarms.MaxImbalance {
@@ -385,6 +400,17 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 }
 
 func cmplxAbs(c complex128) float64 { return math.Hypot(real(c), imag(c)) }
+
+// dirOf is the direction along which conductor name's current is signed
+// (zero when not known).
+func (p *processor) dirOf(name string) [3]float64 {
+	for i, n := range p.names {
+		if n == name && i < len(p.dirs) {
+			return p.dirs[i]
+		}
+	}
+	return [3]float64{}
+}
 
 func (p *processor) alarm(w *window, kind, subject string, value, threshold float64, msg string) Alarm {
 	return Alarm{Asset: p.asset.Name, Kind: kind, Window: w.Index, Start: w.Start, End: w.End,

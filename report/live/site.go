@@ -148,6 +148,20 @@ type ConductorConfig struct {
 	Direction [3]float64 `toml:"direction"`
 	From      [3]float64 `toml:"from"`
 	To        [3]float64 `toml:"to"`
+
+	// pointSet and dirSet say whether the site file gave point and
+	// direction (model "commission", where both are optional: see
+	// InverseCommissioner).
+	pointSet, dirSet bool
+}
+
+// currentDir is the direction along which the conductor's current is
+// counted positive: Direction for a line, To - From for a segment.
+func (c *ConductorConfig) currentDir() [3]float64 {
+	if c.Kind == "segment" {
+		return [3]float64{c.To[0] - c.From[0], c.To[1] - c.From[1], c.To[2] - c.From[2]}
+	}
+	return c.Direction
 }
 
 // AlarmConfig is the [asset.alarms] table; a zero threshold disables its alarm.
@@ -208,6 +222,26 @@ func ParseSite(name string, data []byte) (*Site, error) {
 			keys[i] = k.String()
 		}
 		return nil, fmt.Errorf("live: %s: unknown key %s", name, strings.Join(keys, ", "))
+	}
+	// Which conductors give point and direction (optional for model
+	// "commission"); a [3]float64 cannot tell an absent key from zeros.
+	var given struct {
+		Assets []struct {
+			Conductors []struct {
+				Point     *[3]float64 `toml:"point"`
+				Direction *[3]float64 `toml:"direction"`
+			} `toml:"conductor"`
+		} `toml:"asset"`
+	}
+	if _, err := toml.Decode(string(data), &given); err == nil && len(given.Assets) == len(s.Assets) {
+		for i, ga := range given.Assets {
+			for j, gc := range ga.Conductors {
+				if j < len(s.Assets[i].Conductors) {
+					c := &s.Assets[i].Conductors[j]
+					c.pointSet, c.dirSet = gc.Point != nil, gc.Direction != nil
+				}
+			}
+		}
 	}
 	s.Path = name
 	if err := s.validate(); err != nil {
@@ -368,7 +402,21 @@ func (a *AssetConfig) validate(dir string) error {
 		}
 		cnames[c.Name] = true
 		if a.Model == "commission" {
-			continue // geometry is fitted; the entry names the conductor
+			// The geometry is fitted; the entry names the conductor and
+			// may say roughly where it runs (point: to match the fitted
+			// lines to the names and to give a go-and-return pair its
+			// spacing) and which way its current is counted (direction).
+			if c.dirSet && c.Direction == ([3]float64{}) {
+				return fmt.Errorf("conductor %q: direction is zero", c.Name)
+			}
+			if c.pointSet != a.Conductors[0].pointSet {
+				with, without := a.Conductors[0].Name, c.Name
+				if c.pointSet {
+					with, without = without, with
+				}
+				return fmt.Errorf("conductor %q gives a point and %q does not: with model \"commission\" give every conductor's point (where it runs, roughly) or none", with, without)
+			}
+			continue
 		}
 		switch c.Kind {
 		case "", "line":

@@ -1,0 +1,450 @@
+package live
+
+import (
+	"fmt"
+	"math"
+	"sort"
+
+	"gonum.org/v1/gonum/mat"
+
+	"undercurrent/inverse"
+)
+
+// commissionLines turns the lines fitted to the commissioning readings
+// into the asset's conductors.
+//
+// Names. When the site file gives the conductors' points (roughly where
+// each runs), each fitted line takes the name of the conductor whose point
+// lies nearest it (the assignment with the least total distance). Without
+// points the lines are named in the order the site file lists the
+// conductors, from left to right looking along their common direction
+// (west to east for conductors running north), shallower first where two
+// lie one above the other; with none listed they are c1, c2, ... in that
+// order.
+//
+// Directions. A line whose conductor gives a direction is turned to point
+// along it; every other line is turned to point along the first
+// conductor's direction (or, with no direction given at all, the first
+// line's direction turned to point north, or east for a line running due
+// east-west), so that currents of a go and its return are compared along
+// one direction: a balanced pair reads I and -I, not I and I.
+//
+// Go-and-return pairs. Two opposite currents close together, against
+// their distance from the sensors, give the field of a line dipole,
+// B = mu0 I d / (2 pi r^2) (Biot-Savart for the two lines, expanded in
+// d/r): the readings determine the pair's centre, direction, the axis
+// through its two cores and the product I d, but not I and d apart
+// (inverse.PairEstimate). The fitted lines of such a pair sit at an
+// arbitrary spacing with currents to match, so they are not kept: the two
+// cores are placed on the fitted axis either side of the fitted centre at
+// the spacing of the site file's points, each on the side where the site
+// file puts it. Their currents are then as right as that spacing (10% off
+// in the spacing is 10% off in both currents), while their sum, the
+// current that does not return through the pair, does not depend on it to
+// first order. Without points such a pair is refused: neither core's
+// current would mean anything.
+func commissionLines(p *inverse.Problem, res *inverse.Result, stated []ConductorConfig) ([]ConductorConfig, error) {
+	type line struct {
+		point, dir [3]float64
+		pair       int // index in res.Pairs, -1 for a resolved line
+	}
+	var lines []line
+	for _, s := range res.Sources {
+		if s.Kind == "line" {
+			lines = append(lines, line{point: s.Point, dir: unit(s.Dir), pair: -1})
+		}
+	}
+	if len(lines) == 0 {
+		return nil, fmt.Errorf("the fit found no conductor")
+	}
+	for pi, pr := range res.Pairs {
+		for _, l := range pr.Lines {
+			if l >= 0 && l < len(lines) {
+				lines[l].pair = pi
+			}
+		}
+	}
+	named := len(stated) == len(lines)
+	withPoints := named && stated[0].pointSet
+	if !withPoints {
+		for _, pr := range res.Pairs {
+			return nil, &needsSiteError{fmt.Errorf("the readings show a go-and-return pair (centre %.2f m east, %.2f m north, %.2f m up; current times spacing %.3g A m) "+
+				"whose current and spacing they do not separate, so neither core's current can be found: give each [[asset.conductor]] its point "+
+				"(where it runs, roughly) in the site file, from which the pair's spacing is taken", pr.Point[0], pr.Point[1], pr.Point[2], pr.Moment)}
+		}
+	}
+
+	// owner[k] is the stated conductor of line k.
+	owner := make([]int, len(lines))
+	for k := range owner {
+		owner[k] = k
+	}
+	if withPoints {
+		// The fitted line (a pair's line: the pair's centre line) each
+		// conductor's point lies nearest, by the least total distance.
+		axis := func(k int) ([3]float64, [3]float64) {
+			if pi := lines[k].pair; pi >= 0 {
+				return res.Pairs[pi].Point, unit(res.Pairs[pi].Dir)
+			}
+			return lines[k].point, lines[k].dir
+		}
+		cost := make([][]float64, len(lines))
+		for k := range lines {
+			pt, d := axis(k)
+			for j := range stated {
+				cost[k] = append(cost[k], norm(perp(sub(stated[j].Point, pt), d)))
+			}
+		}
+		owner = leastCostAssignment(cost)
+		// Place each unresolved pair's cores at the stated spacing.
+		for pi, pr := range res.Pairs {
+			a, b := pr.Lines[0], pr.Lines[1]
+			d := unit(pr.Dir)
+			sv := perp(sub(stated[owner[a]].Point, stated[owner[b]].Point), d)
+			sp := norm(sv)
+			if sp < 1e-3 {
+				return nil, &needsSiteError{fmt.Errorf("conductors %q and %q are a go-and-return pair whose spacing the readings do not give, and their points in the site file are %.2g m apart across the pair: give each core's point (where it runs, roughly), the two at their spacing",
+					stated[owner[a]].Name, stated[owner[b]].Name, sp)}
+			}
+			// The axis through the two cores is determined (it is the
+			// direction of the line dipole's moment); the fitted lines
+			// give it. Fall back on the site file's when they coincide.
+			u := perp(sub(lines[a].point, lines[b].point), d)
+			if norm(u) < 1e-9 {
+				u = sv
+			}
+			u = unit(u)
+			if dot(u, sv) < 0 {
+				u = scale(u, -1)
+			}
+			// The fitted centre and axis went with the fitted spacing: the
+			// field's next terms beyond the dipole's (relative size
+			// (d/r)^2) were absorbed by moving them. Fit them again with
+			// the spacing held, the other lines held where fitted.
+			var others []inverse.Source
+			for k, l := range lines {
+				if k != a && k != b {
+					others = append(others, inverse.Line{Point: l.point, Dir: l.dir})
+				}
+			}
+			c, d, u, err := refitPair(p, others, pr.Point, d, u, sp)
+			if err != nil {
+				return nil, fmt.Errorf("conductors %q and %q (a go-and-return pair at the site file's spacing, %.3g m): %w", stated[owner[a]].Name, stated[owner[b]].Name, sp, err)
+			}
+			lines[a] = line{point: add(c, scale(u, sp/2)), dir: d, pair: pi}
+			lines[b] = line{point: add(c, scale(u, -sp/2)), dir: d, pair: pi}
+		}
+	}
+
+	// Directions: the stated one, or the first conductor's.
+	byOwner := make([]int, len(lines)) // line of each stated conductor
+	for k, j := range owner {
+		byOwner[j] = k
+	}
+	var ref [3]float64
+	for j := range stated {
+		if j < len(byOwner) && stated[j].dirSet {
+			ref = unit(stated[j].Direction)
+			break
+		}
+	}
+	if ref == ([3]float64{}) {
+		ref = northward(lines[byOwner[0]].dir)
+	}
+	for k := range lines {
+		want := ref
+		if named && stated[owner[k]].dirSet {
+			want = stated[owner[k]].Direction
+		}
+		if dot(lines[k].dir, want) < 0 {
+			lines[k].dir = scale(lines[k].dir, -1)
+		}
+	}
+
+	if !withPoints {
+		// Left to right along ref, about the sensors' centroid.
+		var c [3]float64
+		for _, pt := range p.Points {
+			c = add(c, scale(pt, 1/float64(len(p.Points))))
+		}
+		right := [3]float64{ref[1], -ref[0], 0}
+		if norm(right) < 1e-9 {
+			right = [3]float64{1, 0, 0}
+		}
+		right = unit(right)
+		order := make([]int, len(lines))
+		for k := range order {
+			order[k] = k
+		}
+		sort.SliceStable(order, func(x, y int) bool {
+			ox, oy := dot(sub(lines[order[x]].point, c), right), dot(sub(lines[order[y]].point, c), right)
+			if math.Abs(ox-oy) > 1e-6 {
+				return ox < oy
+			}
+			return lines[order[x]].point[2] > lines[order[y]].point[2]
+		})
+		for j, k := range order {
+			owner[k] = j
+		}
+	}
+
+	out := make([]ConductorConfig, len(lines))
+	for k, l := range lines {
+		name := fmt.Sprintf("c%d", owner[k]+1)
+		if named {
+			name = stated[owner[k]].Name
+		}
+		out[owner[k]] = ConductorConfig{Name: name, Kind: "line", Point: l.point, Direction: l.dir}
+	}
+	return out, nil
+}
+
+// refitPair fits the centre c, direction d and core axis u of a pair of
+// lines spaced sp (m) to the readings of p, with the sources others held
+// and every current (and the uniform background) fitted linearly by
+// inverse.FitStrengths: Levenberg-Marquardt (More 1978) on five geometry
+// parameters (the centre's shift across d, d's tilt, u's turn about d)
+// with a forward-difference Jacobian, from the given values. u is
+// returned perpendicular to d, on the side of the given u.
+func refitPair(p *inverse.Problem, others []inverse.Source, c, d, u [3]float64, sp float64) ([3]float64, [3]float64, [3]float64, error) {
+	e1 := unit(perp(u, d))
+	e2 := cross(d, e1)
+	geom := func(x []float64) ([3]float64, [3]float64, [3]float64) {
+		dd := unit(add(d, add(scale(e1, x[2]), scale(e2, x[3]))))
+		cc := add(c, add(scale(e1, x[0]), scale(e2, x[1])))
+		uu := unit(perp(add(scale(e1, math.Cos(x[4])), scale(e2, math.Sin(x[4]))), dd))
+		return cc, dd, uu
+	}
+	resid := func(x []float64) ([]float64, error) {
+		cc, dd, uu := geom(x)
+		src := append([]inverse.Source{inverse.Line{Point: add(cc, scale(uu, sp/2)), Dir: dd}, inverse.Line{Point: add(cc, scale(uu, -sp/2)), Dir: dd}}, others...)
+		r, err := inverse.FitStrengths(p, src, nil)
+		if err != nil {
+			return nil, err
+		}
+		var v []float64
+		for _, z := range r.ResidualPhasors {
+			for _, c := range z {
+				v = append(v, real(c), imag(c))
+			}
+		}
+		for _, f := range r.Residuals {
+			v = append(v, f[:]...)
+		}
+		return v, nil
+	}
+	const np = 5
+	x := make([]float64, np)
+	r, err := resid(x)
+	if err != nil {
+		return c, d, u, err
+	}
+	rss := dot2(r)
+	lambda := 1e-3
+	for iter := 0; iter < 100 && rss > 0; iter++ {
+		// Forward-difference Jacobian; steps of 1e-7 m and rad.
+		J := mat.NewDense(len(r), np, nil)
+		for j := range np {
+			xh := append([]float64(nil), x...)
+			xh[j] += 1e-7
+			rh, err := resid(xh)
+			if err != nil {
+				return c, d, u, err
+			}
+			for i := range r {
+				J.Set(i, j, (rh[i]-r[i])/1e-7)
+			}
+		}
+		var jtj mat.Dense
+		jtj.Mul(J.T(), J)
+		g := mat.NewVecDense(np, nil)
+		g.MulVec(J.T(), mat.NewVecDense(len(r), r))
+		improved := false
+		for range 20 {
+			A := mat.DenseCopyOf(&jtj)
+			for j := range np {
+				A.Set(j, j, jtj.At(j, j)*(1+lambda))
+			}
+			var step mat.VecDense
+			if err := step.SolveVec(A, g); err != nil {
+				lambda *= 10
+				continue
+			}
+			xn := append([]float64(nil), x...)
+			for j := range np {
+				xn[j] -= step.AtVec(j)
+			}
+			rn, err := resid(xn)
+			if err != nil {
+				return c, d, u, err
+			}
+			if s := dot2(rn); s < rss {
+				done := rss-s <= 1e-12*rss
+				x, r, rss, improved = xn, rn, s, true
+				lambda = math.Max(lambda/10, 1e-12)
+				if done {
+					iter = 100
+				}
+				break
+			}
+			lambda *= 10
+		}
+		if !improved {
+			break
+		}
+	}
+	cc, dd, uu := geom(x)
+	return cc, dd, uu, nil
+}
+
+func dot2(v []float64) float64 {
+	var s float64
+	for _, x := range v {
+		s += x * x
+	}
+	return s
+}
+
+func cross(a, b [3]float64) [3]float64 {
+	return [3]float64{a[1]*b[2] - a[2]*b[1], a[2]*b[0] - a[0]*b[2], a[0]*b[1] - a[1]*b[0]}
+}
+
+// maxCommissionChi2 is the largest reduced chi-square, against one
+// window's noise, that the commissioned lines' misfit of the mean
+// readings alone may give (the default of alarms.max_chi2, above which a
+// window's fit is degraded): lines that miss their own commissioning
+// readings by more would make every window degraded and its currents
+// wrong, so they are not stored.
+const maxCommissionChi2 = 25
+
+// commissionMisfit refuses conductors that miss the mean readings of p by
+// more than sqrt(maxCommissionChi2) times windowSigma RMS (nothing is
+// refused when windowSigma is 0).
+func commissionMisfit(p *inverse.Problem, windowSigma float64, conds []ConductorConfig) error {
+	if !(windowSigma > 0) {
+		return nil
+	}
+	var src []inverse.Source
+	for _, c := range conds {
+		src = append(src, inverse.Line{Point: c.Point, Dir: c.Direction})
+	}
+	r, err := inverse.FitStrengths(p, src, nil)
+	if err != nil {
+		return err
+	}
+	if r.RMS > math.Sqrt(maxCommissionChi2)*windowSigma {
+		return fmt.Errorf("the %d fitted lines miss the commissioning readings by %.3g nT RMS, %.3g times one window's noise: the conductors are not where the fit put them",
+			len(conds), r.RMS, r.RMS/windowSigma)
+	}
+	return nil
+}
+
+// commissionStatedPair fits two parallel lines at the spacing of the two
+// stated conductors' points, from where the site file puts them: centre
+// midway, direction the stated one (else horizontal, across the line
+// joining the points, turned north), core axis through the points; see
+// refitPair.
+func commissionStatedPair(p *inverse.Problem, stated []ConductorConfig) ([]ConductorConfig, error) {
+	a, b := stated[0], stated[1]
+	c := scale(add(a.Point, b.Point), 0.5)
+	sep := sub(a.Point, b.Point)
+	var d [3]float64
+	switch {
+	case a.dirSet:
+		d = unit(a.Direction)
+	case b.dirSet:
+		d = unit(b.Direction)
+	default:
+		d = cross([3]float64{0, 0, 1}, sep)
+		if norm(d) < 1e-9 {
+			d = [3]float64{0, 1, 0}
+		}
+		d = northward(unit(d))
+	}
+	u := perp(sep, d)
+	sp := norm(u)
+	if sp < 1e-3 {
+		return nil, fmt.Errorf("conductors %q and %q: points %.2g m apart across the conductors", a.Name, b.Name, sp)
+	}
+	c, d, u, err := refitPair(p, nil, c, d, unit(u), sp)
+	if err != nil {
+		return nil, err
+	}
+	out := []ConductorConfig{
+		{Name: a.Name, Kind: "line", Point: add(c, scale(u, sp/2)), Direction: d},
+		{Name: b.Name, Kind: "line", Point: add(c, scale(u, -sp/2)), Direction: d},
+	}
+	for i, st := range stated {
+		if st.dirSet && dot(out[i].Direction, st.Direction) < 0 {
+			out[i].Direction = scale(out[i].Direction, -1)
+		}
+	}
+	return out, nil
+}
+
+// needsSiteError is a commissioning failure that more readings would not
+// mend: the site file must say more.
+type needsSiteError struct{ err error }
+
+func (e *needsSiteError) Error() string { return e.err.Error() }
+func (e *needsSiteError) Unwrap() error { return e.err }
+
+// leastCostAssignment returns, for each row k of the square matrix cost,
+// the column it is assigned to, minimising the sum of the costs over the
+// permutations (at most 8 lines: 40320 permutations, at once).
+func leastCostAssignment(cost [][]float64) []int {
+	n := len(cost)
+	perm := make([]int, n)
+	for i := range perm {
+		perm[i] = i
+	}
+	best := append([]int(nil), perm...)
+	bestCost := math.Inf(1)
+	var rec func(i int, sum float64)
+	rec = func(i int, sum float64) {
+		if sum >= bestCost {
+			return
+		}
+		if i == n {
+			bestCost = sum
+			copy(best, perm)
+			return
+		}
+		for j := i; j < n; j++ {
+			perm[i], perm[j] = perm[j], perm[i]
+			rec(i+1, sum+cost[i][perm[i]])
+			perm[i], perm[j] = perm[j], perm[i]
+		}
+	}
+	rec(0, 0)
+	return best
+}
+
+// northward turns d to point north (east for a line running due east-west,
+// up for a vertical one).
+func northward(d [3]float64) [3]float64 {
+	switch {
+	case d[1] < 0, d[1] == 0 && d[0] < 0, d[1] == 0 && d[0] == 0 && d[2] < 0:
+		return scale(d, -1)
+	}
+	return d
+}
+
+func add(a, b [3]float64) [3]float64 { return [3]float64{a[0] + b[0], a[1] + b[1], a[2] + b[2]} }
+func sub(a, b [3]float64) [3]float64 { return [3]float64{a[0] - b[0], a[1] - b[1], a[2] - b[2]} }
+func scale(a [3]float64, f float64) [3]float64 {
+	return [3]float64{a[0] * f, a[1] * f, a[2] * f}
+}
+func dot(a, b [3]float64) float64 { return a[0]*b[0] + a[1]*b[1] + a[2]*b[2] }
+func norm(a [3]float64) float64   { return math.Sqrt(dot(a, a)) }
+
+// unit is a scaled to length 1 (zero stays zero).
+func unit(a [3]float64) [3]float64 {
+	if n := norm(a); n > 0 {
+		return scale(a, 1/n)
+	}
+	return a
+}
+
+// perp is the part of a perpendicular to the unit vector d.
+func perp(a, d [3]float64) [3]float64 { return sub(a, scale(d, dot(a, d))) }
