@@ -342,6 +342,14 @@ type Result struct {
 	// Pairs are go-and-return pairs among the lines whose currents and spacing the
 	// data do not separate (see PairEstimate); nil when there are none.
 	Pairs []PairEstimate
+	// Opposed pairs the strongest line with each line the fit resolved that runs
+	// beside it (within 10 degrees) carrying an opposite current, nearest first:
+	// the two cores of a go-and-return circuit seen apart, with their centre,
+	// spacing and net current (the current that does not return through the pair)
+	// and its sigma from the covariance, as for Pairs; the lines keep their own
+	// currents. Nil when there is none, or when an unresolved pair (Pairs) holds the
+	// strongest line.
+	Opposed []PairEstimate
 	// Notes are cautions about the whole fit.
 	Notes []string
 }

@@ -249,8 +249,8 @@ func (f *fitter) summarise(c *candidate) (*summary, error) {
 		su.lines = append(su.lines, e)
 		off += g.nfree()
 	}
+	su.flip = flip
 	if nl == 2 {
-		su.flip = flip
 		if pe, ok := f.pairOf(c, su, 0, 1); ok {
 			su.pairs = append(su.pairs, pe)
 			for _, l := range pe.Lines {
@@ -525,7 +525,7 @@ func (f *fitter) report(c *candidate, scores []ModelScore) (*Result, error) {
 		Sources: su.lines, Sigma: su.sigma, Chi2: su.chi2, DOF: su.dof,
 		Status: c.res.status, Iterations: c.iters, Starts: f.starts, Criteria: scores,
 		Covariance: su.cov, ParamNames: su.names, DepthReference: su.refName, ReferenceZ: su.zref,
-		SingleTraverse: f.sv.single, Pairs: su.pairs,
+		SingleTraverse: f.sv.single, Pairs: su.pairs, Opposed: f.opposedOf(c, su),
 	}
 	np := sp.nparams()
 	bc, q, nr := sp.bgCol(), sp.q, sp.nrhs
@@ -649,10 +649,72 @@ type PairEstimate struct {
 	Moment, MomentSigma float64
 	// NetCurrent is the sum of the two currents along Dir (DC, signed) or its RMS
 	// (AC), A, with its one-sigma uncertainty: the current that does not return
-	// through the pair.
-	NetCurrent, NetCurrentSigma float64
+	// through the pair. For AC, NetCurrentPhase is the phase of that sum flowing
+	// along Dir, degrees in [-180, 180] (referenced like SourceEstimate.Phase), with
+	// its one-sigma uncertainty (large when the net current is within its noise).
+	NetCurrent, NetCurrentSigma           float64
+	NetCurrentPhase, NetCurrentPhaseSigma float64
+	// Spacing is the distance between the two lines, m, with its one-sigma
+	// uncertainty, for a resolved pair (Result.Opposed); zero for an unresolved
+	// one, whose spacing is not determined.
+	Spacing, SpacingSigma float64
 	// Notes explain what is not determined.
 	Notes []string
+}
+
+// opposedMaxAngle is the largest angle between two lines, degrees, for them to be
+// taken as running side by side (a pair): as pairOf.
+const opposedMaxAngle = 10
+
+// opposedOf returns the strongest line of the summarised candidate c paired with
+// each line the fit resolved that runs within opposedMaxAngle of it carrying an
+// opposite current (a current whose phasor makes more than 90 degrees with the
+// strongest's once both are turned the same way; for DC, of the other sign),
+// nearest first: the two cores of a go-and-return circuit seen apart. Each is
+// described as an unresolved pair is (pairOf), with the spacing; the lines keep
+// their own currents. None when an unresolved pair holds the strongest line.
+func (f *fitter) opposedOf(c *candidate, su *summary) []PairEstimate {
+	if len(su.lines) < 2 || su.lines[0].Kind != "line" {
+		return nil
+	}
+	for _, pe := range su.pairs {
+		if pe.Lines[0] == 0 || pe.Lines[1] == 0 {
+			return nil
+		}
+	}
+	sp := c.sp
+	ac := sp.nrhs == 2
+	var out []PairEstimate
+	for j := 1; j < len(su.lines); j++ {
+		b := &su.lines[j]
+		if b.Kind != "line" || !(math.Abs(math.Remainder(su.lines[0].Azimuth-b.Azimuth, 180)) <= opposedMaxAngle) {
+			continue
+		}
+		base, sg := f.pairQuantities(sp, su, 0, j)
+		foldPair(base, ac)
+		// |I0 + Ij| < |I0 - Ij| when Re(I0 conj(Ij)) < 0: opposite currents.
+		if !(math.Abs(base[pqNet]) < 2*base[pqCurrentI]) {
+			continue
+		}
+		pe := PairEstimate{Lines: [2]int{0, j},
+			Point: [3]float64{base[pqPointE], base[pqPointN], base[pqPointU]},
+			Dir:   dirOf(base[pqAzimuth]*math.Pi/180, base[pqDip]*math.Pi/180),
+			Depth: base[pqDepth], DepthSigma: sg[pqDepth],
+			Offset: base[pqOffset], OffsetSigma: sg[pqOffset],
+			Azimuth: base[pqAzimuth], Moment: base[pqMoment], MomentSigma: sg[pqMoment],
+			NetCurrent: base[pqNet], NetCurrentSigma: sg[pqNet],
+			Spacing: base[pqSpacing], SpacingSigma: sg[pqSpacing],
+		}
+		if ac {
+			pe.NetCurrentPhase, pe.NetCurrentPhaseSigma = base[pqNetPhase], sg[pqNetPhase]
+		}
+		if !sp.geom[0].holdAz && !sp.geom[j].holdAz {
+			pe.AzimuthSigma = sg[pqAzimuth]
+		}
+		out = append(out, pe)
+	}
+	sort.SliceStable(out, func(a, b int) bool { return out[a].Spacing < out[b].Spacing })
+	return out
 }
 
 // Indices of the quantities derivePair reports.
@@ -666,13 +728,18 @@ const (
 	pqDip
 	pqMoment
 	pqNet
+	pqNetPhase // AC: phase of the net current, degrees
 	pqCurrentI // |I1 - I2|/2, RMS for AC
 	pqSpacing
 	nPairQuantities
 )
 
 // derivePair maps a full parameter vector to the quantities of the pair of lines i
-// and j (nPairQuantities, indexed by the pq constants), written to out.
+// and j (nPairQuantities, indexed by the pq constants), written to out. The pair's
+// direction is the mean of line i's and of line j's turned the same way; its azimuth
+// is not folded (it lies in [-45, 225) degrees) so that the net current, signed (DC)
+// or phased (AC) along line i, stays along it; foldPair turns the quantities to an
+// azimuth in [0, 180).
 func derivePair(sp *separable, sv *survey, zref float64, flip []bool, v []float64, i, j int, w *deriveWork, out []float64) {
 	q := deriveQuantities(sp, sv, zref, flip, v, w, nil)
 	a, b := q[i*nQuantities:(i+1)*nQuantities], q[j*nQuantities:(j+1)*nQuantities]
@@ -697,7 +764,7 @@ func derivePair(sp *separable, sv *survey, zref float64, flip []bool, v []float6
 	if math.Abs(b[qAzimuth]-a[qAzimuth]) > 90 {
 		cj, dipJ = -cj, -dipJ
 	}
-	az := math.Mod(a[qAzimuth]+dAz/2+360, 180)
+	az := a[qAzimuth] + dAz/2
 	dip := (a[qDip] + dipJ) / 2
 	pi := [3]float64{a[qPointE], a[qPointN], a[qPointU]}
 	pj := [3]float64{b[qPointE], b[qPointN], b[qPointU]}
@@ -715,8 +782,28 @@ func derivePair(sp *separable, sv *survey, zref float64, flip []bool, v []float6
 		out[pqNet] = real(ci + cj)
 	} else {
 		out[pqNet] = cmplx.Abs(ci + cj)
+		out[pqNetPhase] = cmplx.Phase(ci+cj) * 180 / math.Pi
 	}
 	out[pqCurrentI], out[pqSpacing] = cmplx.Abs(s), d
+}
+
+// foldPair turns the pair quantities of derivePair to the opposite direction when
+// their azimuth lies outside [0, 180), as the lines' own are reported: the dip, the
+// offset (to the right of the direction) and the DC net current change sign, the AC
+// net current's phase turns by 180 degrees. The sigmas are unchanged. Before, the
+// mean azimuth was folded and the net current left signed along line i, so a pair
+// whose lines straddled north (359.9 and 0.1 degrees) read its net current reversed.
+func foldPair(q []float64, ac bool) {
+	if q[pqAzimuth] >= 0 && q[pqAzimuth] < 180 {
+		return
+	}
+	q[pqAzimuth] = math.Mod(q[pqAzimuth]+360, 180)
+	q[pqDip], q[pqOffset] = -q[pqDip]+0, -q[pqOffset]+0
+	if ac {
+		q[pqNetPhase] = math.Remainder(q[pqNetPhase]+180, 360)
+	} else {
+		q[pqNet] = -q[pqNet] + 0
+	}
 }
 
 // pairRelSigma is the largest relative sigma of the currents of two opposite lines
@@ -766,6 +853,7 @@ func (f *fitter) pairOf(c *candidate, su *summary, i, j int) (PairEstimate, bool
 		return PairEstimate{}, false
 	}
 	base, sg := f.pairQuantities(sp, su, i, j)
+	foldPair(base, sp.nrhs == 2)
 	// Opposite currents (a go and a return).
 	if base[pqCurrentI] == 0 || math.Abs(base[pqNet]) >= base[pqCurrentI] {
 		return PairEstimate{}, false
@@ -797,6 +885,9 @@ func (f *fitter) pairOf(c *candidate, su *summary, i, j int) (PairEstimate, bool
 		Offset: base[pqOffset], OffsetSigma: sg[pqOffset],
 		Azimuth: base[pqAzimuth], Moment: base[pqMoment], MomentSigma: sg[pqMoment],
 		NetCurrent: base[pqNet], NetCurrentSigma: sg[pqNet],
+	}
+	if sp.nrhs == 2 {
+		pe.NetCurrentPhase, pe.NetCurrentPhaseSigma = base[pqNetPhase], sg[pqNetPhase]
 	}
 	if !sp.geom[i].holdAz && !sp.geom[j].holdAz {
 		pe.AzimuthSigma = sg[pqAzimuth]
@@ -839,8 +930,11 @@ func (f *fitter) pairQuantities(sp *separable, su *summary, i, j int) (base, sg 
 		v[p] = su.v[p]
 		for qi := range nPairQuantities {
 			d := up[qi] - dn[qi]
-			if qi == pqAzimuth {
+			switch qi {
+			case pqAzimuth:
 				d = math.Remainder(d, 180)
+			case pqNetPhase:
+				d = math.Remainder(d, 360)
 			}
 			grad[qi][p] = d / (2 * h)
 		}

@@ -205,9 +205,11 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 		rs.MaxReducedChi2 = -1
 	}
 	var stations []route.Station
+	pairRoute := false // conductor 1 is a go-and-return pair (circuitOf)
 	analyse := func() (*route.Route, error) {
 		d.Groups = nil
 		stations = make([]route.Station, 0, len(fits))
+		pairRoute = followsPair(fits, ac)
 		for _, f := range fits {
 			// With the noise given, each fit is measured against its own
 			// (an AC group's windows may hold fewer samples than another's).
@@ -215,7 +217,7 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 			if bs.Noise > 0 && f.Problem != nil && f.Problem.Sigma > 0 {
 				ref = f.Problem.Sigma
 			}
-			g, st := buildGroup(&f, ac, ref, bs.ProfileMax)
+			g, st := buildGroup(&f, ac, ref, bs.ProfileMax, pairRoute)
 			d.Groups = append(d.Groups, g)
 			stations = append(stations, st)
 		}
@@ -239,7 +241,7 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 	}
 	var tracks []builtTrack
 	if len(stations) >= 2 {
-		if tracks, err = buildTracks(fits, r, rs, bs.TrackMinStations); err != nil {
+		if tracks, err = buildTracks(fits, r, rs, bs.TrackMinStations, pairRoute, ac); err != nil {
 			return nil, err
 		}
 		// A current anomaly on a further conductor may be a magnetised
@@ -249,7 +251,7 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 			if r, err = analyse(); err != nil {
 				return nil, err
 			}
-			if tracks, err = buildTracks(fits, r, rs, bs.TrackMinStations); err != nil {
+			if tracks, err = buildTracks(fits, r, rs, bs.TrackMinStations, pairRoute, ac); err != nil {
 				return nil, err
 			}
 		}
@@ -267,6 +269,10 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 	d.UncertaintyNote = SigmaNote
 	aloneFindings(fits, r)
 	d.SetRoute(r)
+	if d.Route != nil {
+		d.Route.PairNet = pairRoute
+		turnPairs(d.Groups, r)
+	}
 	if len(stations) < 2 {
 		d.Route = nil
 		for i := range d.Groups {
@@ -394,9 +400,89 @@ func NoCurrent(s *inverse.SourceEstimate, ac bool) bool {
 	return !s.Identifiable.Current || !(math.Abs(s.Current) > currentK(ac)*s.CurrentSigma)
 }
 
+// followsPair reports whether the route follows a go-and-return pair: at
+// least half of the groups whose fit found a current (usable, see
+// circuitOf) find the strongest line in a pair by the strict test of
+// circuitOf. A pair at one or two groups of a single cable (a riser or a
+// ramp the straight-line model bends to) does not turn the whole route
+// into a pair.
+func followsPair(fits []Fit, ac bool) bool {
+	strict, usable := 0, 0
+	for i := range fits {
+		_, st, ok := circuitOf(&fits[i], ac)
+		if ok {
+			usable++
+		}
+		if st {
+			strict++
+		}
+	}
+	return strict > 0 && 2*strict >= usable
+}
+
+// circuitOf returns the go-and-return pair that the strongest line of fit f
+// belongs to, for the route to follow: the unresolved pair holding it
+// (inverse.Result.Pairs), or the nearest line the fit resolved beside it
+// with the opposite current (inverse.Result.Opposed) whose current is
+// significant and that lies no further from it than their centre lies
+// below the readings. strict is true for an unresolved pair and for a
+// resolved one that returns at least half the current (the net current
+// at most half the stronger core's): the two cores of one circuit.
+// usable is false, and p nil, for a fit that failed or found no current.
+//
+// When the route follows a pair (followsPair, pairRoute in Build), every
+// group with a pair gives the route its centre, depth and net current
+// (the current that does not return through the pair, signed along the
+// pair's direction, its sigma from the fit's covariance), and the
+// partner is not followed as a further conductor. The looser test at the
+// other groups keeps a circuit whose cores some traverses resolve and
+// others do not on one footing. Before, the route took the net current
+// at an unresolved pair and the strongest core's current where the cores
+// were resolved, and reported the difference as current leaving and
+// joining (a sound 10 A / 6 A circuit read "current falls by 5.73 A");
+// and where a balanced pair's cores were resolved it took whichever was
+// the stronger, +10 A here and -10 A there, and reported 20 A steps.
+func circuitOf(f *Fit, ac bool) (p *inverse.PairEstimate, strict, usable bool) {
+	res := f.Result
+	if res == nil || len(res.Sources) == 0 || !(res.Status.Converged() || res.Status == inverse.Stalled) {
+		return nil, false, false
+	}
+	if p := pairOf(res); p != nil {
+		return p, true, true
+	}
+	s0 := &res.Sources[0]
+	if s0.Kind == KindDipole || !sound(s0) || NoCurrent(s0, ac) {
+		return nil, false, false
+	}
+	zc := centroid(f.Problem.Points)[2]
+	for i := range res.Opposed {
+		p := &res.Opposed[i]
+		o := &res.Sources[p.Lines[1]]
+		if o.Kind == KindDipole || !sound(o) || NoCurrent(o, ac) || !(p.Spacing <= zc-p.Point[2]) {
+			continue
+		}
+		return p, math.Abs(p.NetCurrent) <= 0.5*math.Max(math.Abs(s0.Current), math.Abs(o.Current)), true
+	}
+	return nil, false, true
+}
+
+// circuitPartner is the index of the line that the route's conductor of
+// fit f is paired with when the route follows a go-and-return pair
+// (circuitOf), or -1.
+func circuitPartner(f *Fit, ac, pairRoute bool) int {
+	if !pairRoute {
+		return -1
+	}
+	if p, _, _ := circuitOf(f, ac); p != nil {
+		return p.Lines[0] + p.Lines[1] // one of them is 0, the strongest
+	}
+	return -1
+}
+
 // buildGroup converts one fit into the document's group and the route's
-// station (the strongest source is the one the route follows).
-func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int) (Group, route.Station) {
+// station (the strongest source is the one the route follows; with
+// pairRoute, the go-and-return pair it belongs to, see circuitOf).
+func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute bool) (Group, route.Station) {
 	pts := f.Problem.Points
 	g := Group{Key: f.Key, Points: len(pts), Centroid: centroid(pts), Sources: []Source{}}
 	st := route.Station{Key: f.Key, Point: g.Centroid, AC: ac, Dipole: f.Dipole}
@@ -427,7 +513,7 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int) (Group, route
 	}
 	pair := pairOf(res)
 	if pair != nil {
-		g.Pair = buildPair(pair)
+		g.Pair = buildPair(pair, ac)
 	}
 	// An unresolved go-and-return pair has no current of its own lines,
 	// but its centre and current times spacing are found (Group.Pair).
@@ -469,18 +555,28 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int) (Group, route
 		st.Current, st.CurrentSigma = s.Current, s.CurrentSigma
 		st.Phase, st.PhaseSigma = s.Phase, s.PhaseSigma
 		st.Depth, st.DepthSigma = s.Depth, s.DepthSigma
-		if pair != nil {
+		circ, partner := pair, -1
+		if circ == nil && pairRoute {
+			circ, _, _ = circuitOf(f, ac)
+		}
+		if circ != nil {
 			// The route follows the pair's centre, and its current
 			// profile takes the pair's net current (the current that
-			// does not return through the pair), the one current found.
+			// does not return through the pair): for an unresolved
+			// pair the one current found, for resolved cores their
+			// sum, so that both read alike (circuitOf).
 			if g.OK {
-				st.Point, st.Dir = pair.Point, pair.Dir
+				st.Point, st.Dir = circ.Point, circ.Dir
 			}
-			st.Current, st.CurrentSigma = pair.NetCurrent, pair.NetCurrentSigma
-			st.PhaseSigma = 0
-			st.Depth, st.DepthSigma = pair.Depth, pair.DepthSigma
+			st.Current, st.CurrentSigma = circ.NetCurrent, circ.NetCurrentSigma
+			st.Phase, st.PhaseSigma = circ.NetCurrentPhase, circ.NetCurrentPhaseSigma
+			st.Depth, st.DepthSigma = circ.Depth, circ.DepthSigma
+			partner = circ.Lines[0] + circ.Lines[1]
 		}
-		for _, o := range res.Sources[1:] {
+		for j, o := range res.Sources {
+			if j == 0 || j == partner {
+				continue
+			}
 			if o.Kind != KindDipole && sound(&o) {
 				st.Further = append(st.Further, route.Line{Point: o.Point, Dir: o.Dir,
 					Current: o.Current, CurrentSigma: o.CurrentSigma, Depth: o.Depth, DepthSigma: o.DepthSigma})
@@ -583,13 +679,45 @@ func pairOf(res *inverse.Result) *inverse.PairEstimate {
 	return nil
 }
 
+// turnPairs turns each group's unresolved pair along the route r, as
+// Document.SetRoute turns the sources: a pair whose direction points
+// against increasing chainage is reversed, with its azimuth, offset and
+// the sign (DC) or phase (AC) of its net current, so that the net current
+// reads the same way at every station.
+func turnPairs(groups []Group, r *route.Route) {
+	dir := map[string][3]float64{}
+	for _, p := range r.Stations {
+		if _, dup := dir[p.Key]; !dup {
+			dir[p.Key] = p.Dir
+		}
+	}
+	for i := range groups {
+		p := groups[i].Pair
+		t, ok := dir[groups[i].Key]
+		if p == nil || !ok || p.Direction[0]*t[0]+p.Direction[1]*t[1] >= 0 {
+			continue
+		}
+		for a := range p.Direction {
+			p.Direction[a] = -p.Direction[a]
+		}
+		p.Azimuth = math.Mod(p.Azimuth+180, 360)
+		p.Offset = -p.Offset
+		if p.NetCurrentPhase != nil {
+			ph := math.Mod(*p.NetCurrentPhase+360, 360) - 180 // +180 wrapped to [-180, 180)
+			p.NetCurrentPhase = &ph
+		} else {
+			p.NetCurrent = -p.NetCurrent
+		}
+	}
+}
+
 // buildPair converts an unresolved pair for the document.
-func buildPair(p *inverse.PairEstimate) *Pair {
+func buildPair(p *inverse.PairEstimate, ac bool) *Pair {
 	unid := []string{"current", "spacing"}
 	if p.AzimuthSigma == 0 {
 		unid = append(unid, "azimuth") // held, not fitted
 	}
-	return &Pair{
+	out := &Pair{
 		Sources: p.Lines, Point: p.Point, Direction: p.Dir,
 		Depth: p.Depth, DepthSigma: p.DepthSigma,
 		Offset: p.Offset, OffsetSigma: p.OffsetSigma,
@@ -599,6 +727,11 @@ func buildPair(p *inverse.PairEstimate) *Pair {
 		Unidentifiable: unid,
 		Notes:          append([]string(nil), p.Notes...),
 	}
+	if ac {
+		ph, phs := p.NetCurrentPhase, p.NetCurrentPhaseSigma
+		out.NetCurrentPhase, out.NetCurrentPhaseSigma = &ph, &phs
+	}
+	return out
 }
 
 // buildSource converts one fitted source; pts are the group's readings,

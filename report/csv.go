@@ -14,7 +14,8 @@ import (
 // empty when the ground is not known; moment_a_m2 and moment_sigma_a_m2
 // are a dipole's (a magnetised object's) alone; the pair_ columns are an
 // unresolved go-and-return pair's (Group.Pair), on both its lines' rows,
-// whose current_a is then empty.
+// whose current_a is then empty (the net current's phase for AC, along the
+// pair's azimuth_deg).
 var csvHeader = []string{
 	"chainage_m", "route_chainage_m", "group", "source", "conductor", "kind",
 	"current_a", "current_sigma_a", "phase_deg", "phase_sigma_deg",
@@ -26,6 +27,7 @@ var csvHeader = []string{
 	"points", "rms_nt", "reference_chi2", "dof", "ok", "problem",
 	"pair_current_times_spacing_am", "pair_current_times_spacing_sigma_am",
 	"pair_net_current_a", "pair_net_current_sigma_a",
+	"pair_net_current_phase_deg", "pair_net_current_phase_sigma_deg",
 }
 
 // csvCol maps a column name of csvHeader to its index.
@@ -139,6 +141,10 @@ func WriteCSV(w io.Writer, d *Document) error {
 				set("pair_current_times_spacing_sigma_am", sig(p.CurrentTimesSpacingSigma))
 				set("pair_net_current_a", fixSig(p.NetCurrent, p.NetCurrentSigma, 4))
 				set("pair_net_current_sigma_a", sig(p.NetCurrentSigma))
+				if p.NetCurrentPhase != nil && p.NetCurrentPhaseSigma != nil {
+					set("pair_net_current_phase_deg", fixSig(*p.NetCurrentPhase, *p.NetCurrentPhaseSigma, 2))
+					set("pair_net_current_phase_sigma_deg", sigCell(*p.NetCurrentPhaseSigma))
+				}
 				if err := cw.Write(row); err != nil {
 					return fmt.Errorf("report: writing CSV: %w", err)
 				}

@@ -285,7 +285,8 @@ type Pair struct {
 	// Sources are the indices of the pair's two lines in Group.Sources.
 	Sources [2]int `json:"sources"`
 	// Point is the pair's centre, midway between the lines, m; Direction
-	// its unit direction.
+	// its unit direction, turned along increasing chainage when there is
+	// a route (as the sources are).
 	Point     [3]float64 `json:"point_m"`
 	Direction [3]float64 `json:"direction"`
 	// Depth of the centre below the depth reference, m, its offset from
@@ -306,6 +307,11 @@ type Pair struct {
 	// through the pair.
 	NetCurrent      float64 `json:"net_current_a"`
 	NetCurrentSigma float64 `json:"net_current_sigma_a"`
+	// NetCurrentPhase is the AC net current's phase flowing along
+	// Direction, degrees (referenced as Source.Phase), and its sigma; nil
+	// for DC.
+	NetCurrentPhase      *float64 `json:"net_current_phase_deg,omitempty"`
+	NetCurrentPhaseSigma *float64 `json:"net_current_phase_sigma_deg,omitempty"`
 	// Unidentifiable lists what the readings do not determine: "current"
 	// and "spacing".
 	Unidentifiable []string `json:"unidentifiable"`
@@ -424,6 +430,15 @@ type Route struct {
 	StationScatterCurrent *float64 `json:"station_scatter_current_a,omitempty"`
 	StationScatterDepth   *float64 `json:"station_scatter_depth_m,omitempty"`
 	StationScatterPairs   int      `json:"station_scatter_pairs,omitempty"`
+	// PairNet is true when conductor 1 is a go-and-return pair (two
+	// cores side by side carrying opposite currents, resolved or not):
+	// a station where the pair was found gives its centre and depth,
+	// and its current is the pair's net current, the sum of the cores'
+	// currents along Direction (the current that does not return
+	// through the pair), so that a step is current leaving or joining
+	// the circuit. The cores' own currents, where resolved, are in the
+	// groups' sources.
+	PairNet bool `json:"pair_net,omitempty"`
 }
 
 // Track is a further conductor followed along the route.

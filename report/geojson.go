@@ -168,6 +168,10 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 				putSigma(props, "current_times_spacing_sigma_am", p.CurrentTimesSpacingSigma)
 				props["net_current_a"] = roundSig(p.NetCurrent, p.NetCurrentSigma, 4)
 				putSigma(props, "net_current_sigma_a", p.NetCurrentSigma)
+				if p.NetCurrentPhase != nil && p.NetCurrentPhaseSigma != nil {
+					props["net_current_phase_deg"] = roundSig(*p.NetCurrentPhase, *p.NetCurrentPhaseSigma, 2)
+					putSigma(props, "net_current_phase_sigma_deg", *p.NetCurrentPhaseSigma)
+				}
 			}
 			geom := d.point(s.Point)
 			fc.Features = append(fc.Features, feature{Type: "Feature", Geometry: geom, Properties: props})

@@ -435,7 +435,12 @@ func (v *view) groupRow(g *Group) groupRow {
 				dep, cov, az = append(dep, "–"), append(cov, "–"), append(az, "–")
 			}
 			if s.Phase != nil {
-				ph = append(ph, "–")
+				if i == p.Sources[1] && p.NetCurrentPhase != nil && p.NetCurrentPhaseSigma != nil {
+					// The net current's phase, along the pair's azimuth.
+					ph = append(ph, pm(*p.NetCurrentPhase, *p.NetCurrentPhaseSigma))
+				} else {
+					ph = append(ph, "–")
+				}
 			}
 			continue
 		}
@@ -584,8 +589,13 @@ func (v *view) summarise() {
 		v.Headline = append(v.Headline, line+".")
 		if len(used) > 0 {
 			a, b := used[0], used[len(used)-1]
-			v.Headline = append(v.Headline, fmt.Sprintf("Current is %s A at chainage %.0f m and %s A at %.0f m.",
-				pm(a.Current, a.CurrentSigma), a.Chainage, pm(b.Current, b.CurrentSigma), b.Chainage))
+			what := "Current"
+			if r.PairNet {
+				v.Headline = append(v.Headline, PairNetSentence)
+				what = "Net current"
+			}
+			v.Headline = append(v.Headline, fmt.Sprintf("%s is %s A at chainage %.0f m and %s A at %.0f m.",
+				what, pm(a.Current, a.CurrentSigma), a.Chainage, pm(b.Current, b.CurrentSigma), b.Chainage))
 			// The shallowest station is taken from every used one (cover is
 			// a safety matter); the deepest from those whose fit is sound,
 			// when there are any: a bend's poor fit read 1.34 m where the
@@ -694,6 +704,10 @@ func (v *view) summarise() {
 		v.HowSure = strings.TrimSpace(v.HowSure + fmt.Sprintf(" %d of %d fits failed and are not used.", len(d.Groups)-ok, len(d.Groups)))
 	}
 }
+
+// PairNetSentence says what the route's current is when conductor 1 is a
+// go-and-return pair (Route.PairNet).
+const PairNetSentence = "The conductor is a go-and-return pair (two cores side by side carrying opposite currents): the route follows the pair's centre, and its current is the pair's net current, the sum of the two cores' currents (the current that does not return through the pair), so a step in it is current leaving or joining the circuit; the cores' own currents, where the readings part them, are in the table of fits."
 
 // ConductorSummary says in a sentence, as the crew report's summary does,
 // where further conductor t runs beside conductor 1, what it carries and

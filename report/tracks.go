@@ -222,7 +222,11 @@ func associate(groups [][]trackSource, minStations int) [][]trackSource {
 // placed across the primary conductor. Groups whose fit failed give none;
 // a group refitted with a magnetised object (Dipole) gives its further
 // lines, fitted beside the object, like any other.
-func trackCandidates(fits []Fit, r *route.Route) [][]trackSource {
+//
+// When the route follows a go-and-return pair (pairRoute, circuitOf) the
+// line paired with each group's strongest is part of conductor 1 and is
+// not offered.
+func trackCandidates(fits []Fit, r *route.Route, pairRoute, ac bool) [][]trackSource {
 	out := make([][]trackSource, len(r.Stations))
 	for k := range r.Stations {
 		p := &r.Stations[k]
@@ -239,8 +243,9 @@ func trackCandidates(fits []Fit, r *route.Route) [][]trackSource {
 		}
 		u := [2]float64{p.Dir[0] / uh, p.Dir[1] / uh}
 		right := [2]float64{u[1], -u[0]}
+		partner := circuitPartner(&fits[p.Index], ac, pairRoute)
 		for j, s := range res.Sources[1:] {
-			if s.Kind == KindDipole {
+			if s.Kind == KindDipole || j+1 == partner {
 				continue
 			}
 			if !sound(&s) {
@@ -328,12 +333,12 @@ type builtTrack struct {
 
 // buildTracks associates the further sources of the fits into tracks
 // along the primary route r and analyses each kept one with route.Build
-// and settings rs.
-func buildTracks(fits []Fit, r *route.Route, rs *route.Settings, minStations int) ([]builtTrack, error) {
+// and settings rs; pairRoute and ac as for trackCandidates.
+func buildTracks(fits []Fit, r *route.Route, rs *route.Settings, minStations int, pairRoute, ac bool) ([]builtTrack, error) {
 	if minStations < 1 {
 		return nil, nil
 	}
-	tracks := associate(trackCandidates(fits, r), minStations)
+	tracks := associate(trackCandidates(fits, r, pairRoute, ac), minStations)
 	out := make([]builtTrack, 0, len(tracks))
 	for i, members := range tracks {
 		n := i + 2

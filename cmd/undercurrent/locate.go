@@ -1432,7 +1432,12 @@ func pairColumns(g *report.Group, i int) (cur, dep string, ok bool) {
 	case i == p.Sources[0]:
 		return "pair I·d " + report.PlusMinus(p.CurrentTimesSpacing, p.CurrentTimesSpacingSigma) + " A·m", report.PlusMinus(p.Depth, p.DepthSigma), true
 	case i == p.Sources[1]:
-		return "net " + report.PlusMinus(p.NetCurrent, p.NetCurrentSigma), "(centre)", true
+		net := "net " + report.PlusMinus(p.NetCurrent, p.NetCurrentSigma)
+		if p.NetCurrentPhase != nil && p.NetCurrentPhaseSigma != nil {
+			// Along the pair's direction, as a source's phase is.
+			net += " ∠" + report.PlusMinus(*p.NetCurrentPhase, *p.NetCurrentPhaseSigma) + "°"
+		}
+		return net, "(centre)", true
 	}
 	return "", "", false
 }
@@ -1518,6 +1523,9 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 			}
 			fmt.Fprintf(w, "%-8s %10s %*s %*s %9.3g%s\n", k, ch, cw, cur, dw, dep, g.RMS, note)
 		}
+	}
+	if doc.Route != nil && doc.Route.PairNet {
+		fmt.Fprintln(w, report.PairNetSentence)
 	}
 	for i := range doc.Conductors {
 		fmt.Fprintln(w, report.ConductorSummary(doc, &doc.Conductors[i]))
