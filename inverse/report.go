@@ -814,6 +814,15 @@ func foldPair(q []float64, ac bool) {
 // estimate. At 10% the curvature skews the range by under 0.1 sigma.
 const pairRelSigma = 0.1
 
+// pairDipoleShare is the least ratio of a pair's line-dipole field to its net
+// current's at the sensors, I d / (net h), for two opposite lines to be reported as
+// a pair (see pairOf). It was 0.5, which refused a pair 0.3 m apart at 1.5 m
+// carrying 10 A out and 7 A back (a ratio of 0.47: 8.5 A x 0.3 m against 3 A x
+// 1.8 m); its traverses were reported as one 2.7 A line 0.4 m too shallow or two
+// wrong lines, and a 3 A loss on the go core as 1.5 A 5 m downstream. The phase
+// ramp the test guards against fitted a ratio of 0.2.
+const pairDipoleShare = 0.3
+
 // pairOf returns the pair estimate of lines i and j of the summarised candidate c when
 // they form a go-and-return pair the data do not resolve and the pair's centre and
 // current times spacing are determined; ok is false otherwise (the lines are then
@@ -859,16 +868,16 @@ func (f *fitter) pairOf(c *candidate, su *summary, i, j int) (PairEstimate, bool
 		return PairEstimate{}, false
 	}
 	h := f.sv.zmean - base[pqPointU]
-	// Most of the current must return through the pair: with a spacing under
-	// half the distance h (a wider pair is resolved), the pair's current
-	// exceeds 2 I d / h, which must exceed the net current; equally, the
-	// pair's dipole field at the sensors is at least half the net current's.
-	// A weaker "pair" is a small departure of one line's field from the
-	// model, which two coincident lines absorb: in review, a 20 A cable
-	// read with the phase turning along each traverse (the frequency off)
-	// was fitted as a pair of 1290 A lines 3 mm apart with I d = 4.4 A m and
-	// 19.3 A net (I d / (net h) = 0.2), and the phase ramp went unnoticed.
-	if !(base[pqMoment] >= 0.5*math.Abs(base[pqNet])*h) {
+	// The pair's own field must be a fair part of the net current's: at the
+	// sensors the pair's line dipole gives mu0 I d / (2 pi h^2) against the
+	// net current's mu0 net / (2 pi h), so I d / (net h) is their ratio, and
+	// it must reach pairDipoleShare. A weaker "pair" is a small departure of
+	// one line's field from the model, which two coincident lines absorb: in
+	// review, a 20 A cable read with the phase turning along each traverse
+	// (the frequency off) was fitted as a pair of 1290 A lines 3 mm apart
+	// with I d = 4.4 A m and 19.3 A net (a ratio of 0.2), and the phase ramp
+	// went unnoticed.
+	if !(base[pqMoment] >= pairDipoleShare*math.Abs(base[pqNet])*h) {
 		return PairEstimate{}, false
 	}
 	if base[pqSpacing] < 0.02*h && !f.splitting {
