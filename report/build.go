@@ -728,8 +728,14 @@ func buildPair(p *inverse.PairEstimate, ac bool) *Pair {
 		Notes:          append([]string(nil), p.Notes...),
 	}
 	if ac {
-		ph, phs := p.NetCurrentPhase, p.NetCurrentPhaseSigma
-		out.NetCurrentPhase, out.NetCurrentPhaseSigma = &ph, &phs
+		if p.NetCurrent > currentK(true)*p.NetCurrentSigma {
+			ph, phs := p.NetCurrentPhase, p.NetCurrentPhaseSigma
+			out.NetCurrentPhase, out.NetCurrentPhaseSigma = &ph, &phs
+		} else {
+			// A net current within its noise has no phase to speak of (a
+			// balanced pair read "∠144 ± 617°").
+			out.Unidentifiable = append(out.Unidentifiable, "net current phase")
+		}
 	}
 	return out
 }

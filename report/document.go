@@ -313,7 +313,8 @@ type Pair struct {
 	NetCurrentPhase      *float64 `json:"net_current_phase_deg,omitempty"`
 	NetCurrentPhaseSigma *float64 `json:"net_current_phase_sigma_deg,omitempty"`
 	// Unidentifiable lists what the readings do not determine: "current"
-	// and "spacing".
+	// and "spacing", and for AC "net current phase" when the net current
+	// is within its noise (NetCurrentPhase is then absent).
 	Unidentifiable []string `json:"unidentifiable"`
 	Notes          []string `json:"notes,omitempty"`
 }
