@@ -574,15 +574,8 @@ func (f *fitter) repolishPair(c *candidate) *candidate {
 	if len(sp.geom) != 2 || len(sp.dips) != 0 || sp.evaluate(c.x) != nil {
 		return c
 	}
-	nr := sp.nrhs
-	cur := func(l int) complex128 {
-		if nr == 2 {
-			return complex(sp.coef[l*nr], sp.coef[l*nr+1])
-		}
-		return complex(sp.coef[l], 0)
-	}
 	g0, g1 := sp.geom[0], sp.geom[1]
-	c0, c1 := cur(0), cur(1)
+	c0, c1 := sp.lineCurrent(0), sp.lineCurrent(1)
 	l0, l1 := g0.line(), g1.line()
 	if dot(l0.Dir, l1.Dir) < 0 {
 		c1 = -c1
@@ -654,6 +647,15 @@ func (f *fitter) repolishPair(c *candidate) *candidate {
 	return c
 }
 
+// lineCurrent is line l's current at the last evaluation of sp, A (a phasor for AC,
+// real for DC).
+func (sp *separable) lineCurrent(l int) complex128 {
+	if nr := sp.nrhs; nr == 2 {
+		return complex(sp.coef[l*nr], sp.coef[l*nr+1])
+	}
+	return complex(sp.coef[l], 0)
+}
+
 // opposite reports whether the two lines of candidate c carry opposite currents
 // (their phasors more than 90 degrees apart once the lines are turned alike).
 func opposite(c *candidate) bool {
@@ -661,14 +663,7 @@ func opposite(c *candidate) bool {
 	if len(sp.geom) != 2 || sp.evaluate(c.x) != nil {
 		return false
 	}
-	nr := sp.nrhs
-	cur := func(l int) complex128 {
-		if nr == 2 {
-			return complex(sp.coef[l*nr], sp.coef[l*nr+1])
-		}
-		return complex(sp.coef[l], 0)
-	}
-	c0, c1 := cur(0), cur(1)
+	c0, c1 := sp.lineCurrent(0), sp.lineCurrent(1)
 	if dot(sp.geom[0].line().Dir, sp.geom[1].line().Dir) < 0 {
 		c1 = -c1
 	}

@@ -156,19 +156,7 @@ func (f *fitter) summarise(c *candidate) (*summary, error) {
 			grad(i)[j] = d / (2 * h)
 		}
 	}
-	sigmaOf := func(i int) float64 {
-		g := grad(i)
-		var s float64
-		for a, ga := range g {
-			if ga == 0 {
-				continue
-			}
-			for b, gb := range g {
-				s += ga * su.cov.At(a, b) * gb
-			}
-		}
-		return math.Sqrt(math.Max(s, 0))
-	}
+	sigmaOf := func(i int) float64 { return deltaSigma(grad(i), su.cov) }
 	// Which parameters each line depends on (for identifiability).
 	off := 0
 	for l, g := range sp.geom {
@@ -950,16 +938,7 @@ func (f *fitter) pairQuantities(sp *separable, su *summary, i, j int) (base, sg 
 	}
 	sg = make([]float64, nPairQuantities)
 	for qi, g := range grad {
-		var s float64
-		for x, gx := range g {
-			if gx == 0 {
-				continue
-			}
-			for y, gy := range g {
-				s += gx * su.cov.At(x, y) * gy
-			}
-		}
-		sg[qi] = math.Sqrt(math.Max(s, 0))
+		sg[qi] = deltaSigma(g, su.cov)
 	}
 	return base, sg
 }
@@ -1008,4 +987,19 @@ func (f *fitter) splitSigmas(c *candidate, base []float64, h float64) ([]float64
 	}
 	_, sg := f.pairQuantities(cs.sp, su2, 0, 1)
 	return sg, true
+}
+
+// deltaSigma is the one-sigma of a quantity whose gradient with respect to the
+// parameters is g, for their covariance cov (the delta method: sqrt(g' cov g)).
+func deltaSigma(g []float64, cov mat.Symmetric) float64 {
+	var s float64
+	for a, ga := range g {
+		if ga == 0 {
+			continue
+		}
+		for b, gb := range g {
+			s += ga * cov.At(a, b) * gb
+		}
+	}
+	return math.Sqrt(math.Max(s, 0))
 }
