@@ -45,7 +45,9 @@ Methods (give exactly one):
   --zero FILE      readings inside a magnetic shield: offsets of all axes.
                    Near zero in any unit, so the field's unit must be stated:
                    by --unit, in the column names (Bx_nT), by the format
-                   (IAGA-2002) or by undercurrent's own metadata (nT).
+                   (IAGA-2002) or by undercurrent's own metadata (nT, for
+                   its own columns bx, by, bz, not for columns mapped by
+                   --column).
   --show CAL.json  print a saved calibration file.
 
 Logs are any format undercurrent reads (CSV, Arrow, Parquet), with the same
