@@ -302,7 +302,8 @@ in the summary's, the result document's and the report's warnings.
 With -o DIR it writes results.json (the result document), results.csv,
 findings.csv (one row per finding), route.geojson and report.html (the crew
 report) into DIR; the directory is
-written whole or not at all, and its parent must exist. An existing DIR
+written whole or not at all, and missing parents are made (the nearest
+existing one must be a directory that can be written in). An existing DIR
 is replaced only when it holds nothing but those files: a DIR holding any
 other file is refused (a usage error, before any work), so that a mistyped
 -o cannot replace unrelated work. --json prints the result document on
@@ -1560,6 +1561,10 @@ func checkOutDir(dir string, keep []string) error {
 	}
 	if !fi.IsDir() {
 		return usageErrorf("-o %s: exists and is not a directory", dir)
+	}
+	// The results replace it from a sibling made in its parent.
+	if err := checkWritableDir(filepath.Dir(filepath.Clean(dir))); err != nil {
+		return fmt.Errorf("-o %s: %w", dir, err)
 	}
 	entries, err := os.ReadDir(dir)
 	if err != nil {
