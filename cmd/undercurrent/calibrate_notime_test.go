@@ -115,7 +115,6 @@ func TestCalibrateNoTimeColumn(t *testing.T) {
 
 	for _, args := range [][]string{
 		{"locate", noTime},
-		{"inspect", noTime},
 		{"convert", noTime, filepath.Join(dir, "out.arrow")},
 	} {
 		code, _, errOut := runCmd(args...)
