@@ -25,6 +25,9 @@ type Inspection struct {
 	Time     TimeStats         `json:"time"`
 	Meta     map[string]string `json:"meta,omitempty"`
 	Warnings []string          `json:"warnings"`
+	// NoTime: the log has no time column (opened with WithTimeOptional);
+	// Time is empty and the time column is not counted as missing.
+	NoTime bool `json:"no_time,omitempty"`
 }
 
 // ColumnStats describes one canonical column. Min, Max and Mean are in
@@ -94,7 +97,7 @@ func Inspect(path string, opts ...Option) (*Inspection, error) {
 	defer r.Release()
 	pl := planOf(r)
 	in := &Inspection{File: path, Format: pl.format, Frame: pl.outFrame().String(), Meta: pl.meta,
-		Unused: []string{}, Columns: []ColumnStats{}, Time: TimeStats{Largest: []Gap{}}, Warnings: []string{}}
+		Unused: []string{}, Columns: []ColumnStats{}, Time: TimeStats{Largest: []Gap{}}, Warnings: []string{}, NoTime: pl.noTime}
 	used := map[int]bool{}
 	for c := 0; c < nCanon; c++ {
 		if pl.src[c] >= 0 {
@@ -133,6 +136,9 @@ func Inspect(path string, opts ...Option) (*Inspection, error) {
 				continue
 			}
 			cols[i] = rec.Column(i).(*array.Float64).Float64Values()
+			if c == cTime && pl.noTime {
+				continue // no time column: not missing values
+			}
 			for _, v := range cols[i] {
 				if math.IsNaN(v) {
 					missing[i]++
@@ -145,6 +151,14 @@ func Inspect(path string, opts ...Option) (*Inspection, error) {
 		}
 		for k, t := range cols[0] {
 			if math.IsNaN(t) {
+				if pl.noTime && len(mags) < keepSteps {
+					// A log without time (a calibration log): its field
+					// is looked at all the same.
+					bx, by, bz := cols[bIdx[0]][k], cols[bIdx[1]][k], cols[bIdx[2]][k]
+					if m := math.Sqrt(bx*bx + by*by + bz*bz); !math.IsNaN(m) {
+						mags = append(mags, m)
+					}
+				}
 				continue
 			}
 			if !math.IsNaN(prev) {

@@ -181,7 +181,9 @@ const (
 	// UnitFromMetadata: the input is in the canonical form, as this
 	// package writes it: its schema metadata (Arrow, Parquet) or "# key:
 	// value" comment lines (CSV) carry MetaFrame, and its columns are in
-	// the canonical units (bx, by, bz in nT).
+	// the canonical units (bx, by, bz in nT). This holds for columns
+	// under their canonical names only: a column of another name (mapped
+	// with WithColumns, or an alias such as "Bx") gets UnitDefault.
 	UnitFromMetadata = "metadata"
 	// UnitDefault: nothing states the unit; the canonical unit is assumed.
 	UnitDefault = "default"
@@ -338,7 +340,13 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 			continue
 		}
 		u, ok := cfg.units[c]
+		// The canonical form's metadata states the canonical units of
+		// the columns this package writes, under their canonical names;
+		// a logger's own column (magX, mapped with a column mapping or
+		// found as an alias) in a file carrying the comment is not one
+		// of them, and its unit is stated by nothing.
 		_, canonical := meta[MetaFrame]
+		canonical = canonical && strings.TrimSpace(header[p.src[c]]) == canonNames[c]
 		switch {
 		case ok:
 			p.unitFrom[c] = UnitGiven

@@ -82,42 +82,88 @@ func checkBaseGroups(path string, opts []ingest.Option, base *ingest.Samples) (s
 }
 
 // minSurveyShare is the share of the base log's readings that, found
-// among a survey log's own readings (the same time and the same three
-// field values), makes the base log a copy of the survey's readings. Two
-// magnetometers read the same field to the last digit on all three axes
-// at the same instant only by chance (their offsets differ by nT); a
+// among a survey log's own readings (the same time, the three field
+// values within surveyMatchNT), makes the base log a copy of the survey's
+// readings. A base station stands elsewhere, with its own offsets and
+// its own orientation: its three axes differ from a survey
+// magnetometer's at the same instant by nT at least (a degree of tilt
+// turns 870 nT of a 50 000 nT field from one axis to another), so
+// agreement to surveyMatchNT on every axis happens only by chance; a
 // survey log given as --base without its position columns matches on
-// every row.
+// every row, exactly or as rounded by an export.
 const minSurveyShare = 0.1
+
+// surveyMatchNT is the agreement, on each axis, of a base reading and a
+// survey reading at the same time that counts them as one reading: an
+// export of the survey log rounded to 0.01 or 0.1 nT is caught, and no
+// base station elsewhere comes near it.
+const surveyMatchNT = 0.5
 
 // checkBaseNotSurvey refuses a base log that holds the readings of the
 // survey log at path (s, as read, before any correction): the copy check
-// by SHA-256 misses a survey log with its columns cut or reordered, and
-// the moving-position check one without positions. Such a base takes the
-// survey's own anomaly away as the diurnal variation.
+// by SHA-256 misses a survey log with its columns cut or reordered, or
+// its values rounded, and the moving-position check one without
+// positions. Such a base takes the survey's own anomaly away as the
+// diurnal variation. A base reading is the survey's when a survey
+// reading at the same time (within half the base log's median interval,
+// for times rounded by an export) agrees with it to surveyMatchNT on all
+// three axes.
 func checkBaseNotSurvey(basePath string, base *ingest.Samples, path string, s *ingest.Samples) error {
-	if base.NoTime || base.Len() == 0 {
+	if base.NoTime || base.Len() == 0 || s.NoTime || len(s.Time) == 0 {
 		return nil
 	}
-	type reading struct{ t, x, y, z float64 }
-	have := make(map[reading]struct{}, base.Len())
-	for i := range base.Len() {
-		have[reading{base.Time[i], base.Bx[i], base.By[i], base.Bz[i]}] = struct{}{}
+	// The base readings in time order (the base log was put in time
+	// order, but its times may hold NaN).
+	var order []int
+	for i, t := range base.Time {
+		if !math.IsNaN(t) {
+			order = append(order, i)
+		}
 	}
+	if len(order) == 0 {
+		return nil
+	}
+	sort.SliceStable(order, func(a, b int) bool { return base.Time[order[a]] < base.Time[order[b]] })
+	tol := 1e-3 // s: a logger's time resolution
+	if len(order) > 1 {
+		steps := make([]float64, 0, len(order)-1)
+		for k := 1; k < len(order); k++ {
+			if d := base.Time[order[k]] - base.Time[order[k-1]]; d > 0 {
+				steps = append(steps, d)
+			}
+		}
+		if len(steps) > 0 {
+			sort.Float64s(steps)
+			tol = math.Max(tol, steps[len(steps)/2]/2)
+		}
+	}
+	near := func(a, b float64) bool { return math.Abs(a-b) <= surveyMatchNT }
+	matched := make([]bool, base.Len())
 	same, first := 0, -1
 	for i := range s.Len() {
-		if _, ok := have[reading{s.Time[i], s.Bx[i], s.By[i], s.Bz[i]}]; ok {
+		t := s.Time[i]
+		if math.IsNaN(t) {
+			continue
+		}
+		k := sort.Search(len(order), func(k int) bool { return base.Time[order[k]] >= t-tol })
+		for ; k < len(order) && base.Time[order[k]] <= t+tol; k++ {
+			j := order[k]
+			if matched[j] || !near(base.Bx[j], s.Bx[i]) || !near(base.By[j], s.By[i]) || !near(base.Bz[j], s.Bz[i]) {
+				continue
+			}
+			matched[j] = true
 			same++
 			if first < 0 {
 				first = i
 			}
+			break
 		}
 	}
-	if same < 10 || float64(same) < minSurveyShare*float64(len(have)) {
+	if same < 10 || float64(same) < minSurveyShare*float64(base.Len()) {
 		return nil
 	}
-	return fmt.Errorf("%s: %d of the base log's %d readings are readings of the survey log %s (the same time and field on all three axes, the first at %s): it holds the survey's own readings, and would take the survey's anomaly away as the diurnal variation; the base log is the record of a second magnetometer left in one place during the survey",
-		basePath, same, len(have), path, fmtBaseTime(s.Time[first]))
+	return fmt.Errorf("%s: %d of the base log's %d readings are readings of the survey log %s (the same time and field, within %g nT on all three axes, the first at %s): it holds the survey's own readings, and would take the survey's anomaly away as the diurnal variation; the base log is the record of a second magnetometer left in one place during the survey",
+		basePath, same, base.Len(), path, surveyMatchNT, fmtBaseTime(s.Time[first]))
 }
 
 // baseGroupColumn returns the name of the base log's group column, as

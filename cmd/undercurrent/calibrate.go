@@ -45,7 +45,9 @@ Methods (give exactly one):
   --zero FILE      readings inside a magnetic shield: offsets of all axes.
                    Near zero in any unit, so the field's unit must be stated:
                    by --unit, in the column names (Bx_nT), by the format
-                   (IAGA-2002) or by undercurrent's own metadata (nT).
+                   (IAGA-2002) or by undercurrent's own metadata (nT, for
+                   its own columns bx, by, bz, not for columns mapped by
+                   --column).
   --show CAL.json  print a saved calibration file.
 
 Logs are any format undercurrent reads (CSV, Arrow, Parquet), with the same
@@ -171,11 +173,11 @@ Examples:
 			// the calibration file so that locate can tell a log of another
 			// sensor (Calibration.Check).
 			var sensor string
-			var times []float64 // of the last log read
+			var where func(j int) string // names reading j of the last log read
 			read := func(role, path string) ([][3]float64, calibrate.Input, error) {
 				// A zero-field log is near zero by design: no unit check.
-				r, in, t, err := readCalibrationLog(ctx, &rf, opts, role, path, role != "zero", &sensor, stderr)
-				times = t
+				r, in, w, err := readCalibrationLog(ctx, &rf, opts, role, path, role != "zero", &sensor, stderr)
+				where = w
 				return r, in, err
 			}
 			if show != "" {
@@ -208,7 +210,7 @@ Examples:
 					return usageErrorf("--reference %g nT is %+.0f%% from the %.0f nT the sensor reads the spin's field as: a magnetometer's scale is not that far out; check the value (the site's field magnitude in nT)", reference, 100*(reference-own)/own, own)
 				}
 				cal = calibrate.FromEllipsoid(res, in)
-				spinNotes(cal, res, times, reference, stderr, spin)
+				spinNotes(cal, res, where, reference, stderr, spin)
 			case zero != "":
 				r, in, err := read("zero", zero)
 				if err != nil {
@@ -316,9 +318,12 @@ func inFile(path string, err error) error {
 // readCalibrationLog reads the field readings of a calibration log with
 // the input flags' options, prints the warnings about it (missing rows
 // dropped, a field unit that looks wrong when checkUnits) and records the
-// file with its checksum.
-func readCalibrationLog(ctx context.Context, rf *readFlags, opts []ingest.Option, role, path string, checkUnits bool, sensor *string, stderr io.Writer) ([][3]float64, calibrate.Input, []float64, error) {
-	s, warns, err := rf.readLog(ctx, path, opts, checkUnits)
+// file with its checksum. where names reading j for messages: its time,
+// or, in a log without time, its line in a CSV file (counting the rows
+// --drop-missing dropped, and the header and comment lines), or else its
+// data row.
+func readCalibrationLog(ctx context.Context, rf *readFlags, opts []ingest.Option, role, path string, checkUnits bool, sensor *string, stderr io.Writer) (r [][3]float64, in calibrate.Input, where func(j int) string, err error) {
+	s, rows, warns, err := rf.readLogRows(ctx, path, opts, checkUnits)
 	if err != nil {
 		return nil, calibrate.Input{}, nil, err
 	}
@@ -331,12 +336,27 @@ func readCalibrationLog(ctx context.Context, rf *readFlags, opts []ingest.Option
 	for _, w := range warns {
 		fmt.Fprintf(stderr, "warning: %s\n", w)
 	}
-	r, err := calibrate.Readings(s)
+	r, err = calibrate.Readings(s)
 	if err != nil {
 		return nil, calibrate.Input{}, nil, err
 	}
-	in, err := calibrate.FileInput(role, path, len(r))
-	return r, in, s.Time, err
+	in, err = calibrate.FileInput(role, path, len(r))
+	times := s.Time
+	comment, headerLine := rf.comment, len(rf.header) == 0
+	where = func(j int) string {
+		if j < len(times) && !math.IsNaN(times[j]) {
+			return calibrationTime(times[j])
+		}
+		row := j
+		if rows != nil && j < len(rows) {
+			row = rows[j]
+		}
+		if lines := dataRowLines(path, []int{row}, comment, headerLine); lines != nil {
+			return fmt.Sprintf("line %d", lines[0])
+		}
+		return fmt.Sprintf("data row %d", row+1)
+	}
+	return r, in, where, err
 }
 
 // noReferenceNote begins the note of a spin calibration made without
@@ -349,9 +369,10 @@ const maxReferenceScale = 0.1
 const noReferenceNote = "no --reference:"
 
 // spinNotes records in cal what the ellipsoid fit left out (with the
-// times of those readings, also shown as a warning), the standard errors
-// of the fit, and, without --reference, that the scale is the sensor's own.
-func spinNotes(cal *calibrate.Calibration, res *calibrate.EllipsoidResult, times []float64, reference float64, stderr io.Writer, path string) {
+// times of those readings, or their places in a log without time, named
+// by where; also shown as a warning), the standard errors of the fit, and,
+// without --reference, that the scale is the sensor's own.
+func spinNotes(cal *calibrate.Calibration, res *calibrate.EllipsoidResult, where func(j int) string, reference float64, stderr io.Writer, path string) {
 	at := func(idx []int) string {
 		var parts []string
 		for i, j := range idx {
@@ -359,12 +380,7 @@ func spinNotes(cal *calibrate.Calibration, res *calibrate.EllipsoidResult, times
 				parts = append(parts, fmt.Sprintf("and %d more", len(idx)-5))
 				break
 			}
-			switch {
-			case j < len(times) && !math.IsNaN(times[j]):
-				parts = append(parts, calibrationTime(times[j]))
-			default: // a log without times
-				parts = append(parts, fmt.Sprintf("reading %d", j+1))
-			}
+			parts = append(parts, where(j))
 		}
 		return strings.Join(parts, ", ")
 	}

@@ -314,6 +314,13 @@ func readSamples(ctx context.Context, path string, opts ...ingest.Option) (*inge
 // position or field value and returns how many it removed. The times of a
 // log read without a time column (s.NoTime) are all NaN and not missing.
 func dropMissingRows(s *ingest.Samples) int {
+	n, _ := dropMissingRowsKept(s)
+	return n
+}
+
+// dropMissingRowsKept is dropMissingRows that also returns the rows kept
+// (0-based data rows of the log as read), nil when none was removed.
+func dropMissingRowsKept(s *ingest.Samples) (int, []int) {
 	n := s.Len()
 	keep := make([]bool, n)
 	kept := 0
@@ -328,7 +335,13 @@ func dropMissingRows(s *ingest.Samples) int {
 		}
 	}
 	if kept == n {
-		return 0
+		return 0, nil
+	}
+	rows := make([]int, 0, kept)
+	for i, k := range keep {
+		if k {
+			rows = append(rows, i)
+		}
 	}
 	filter := func(v []float64) []float64 {
 		if v == nil {
@@ -355,17 +368,26 @@ func dropMissingRows(s *ingest.Samples) int {
 		s.Group = g
 	}
 	delete(s.Meta, "missing_rows")
-	return n - kept
+	return n - kept, rows
 }
 
 // readLog reads one log with the flags' options, drops rows with missing
 // values when --drop-missing was given and checks the field's magnitude
 // (checkFieldUnits). It returns the samples and the warnings to pass on.
 func (f *readFlags) readLog(ctx context.Context, path string, opts []ingest.Option, checkUnits bool) (*ingest.Samples, []string, error) {
+	s, _, warns, err := f.readLogRows(ctx, path, opts, checkUnits)
+	return s, warns, err
+}
+
+// readLogRows is readLog that also returns, for each reading, its data
+// row in the file (0-based, counting the rows --drop-missing dropped);
+// nil when no row was dropped (reading i is data row i).
+func (f *readFlags) readLogRows(ctx context.Context, path string, opts []ingest.Option, checkUnits bool) (*ingest.Samples, []int, []string, error) {
 	s, err := readSamples(ctx, path, opts...)
 	if err != nil {
-		return nil, nil, err
+		return nil, nil, nil, err
 	}
+	var rows []int
 	// The reader's own warnings (an unterminated stream read anyway,
 	// same-named columns, an IAGA-2002 file without DECBAS).
 	var warns []string
@@ -373,9 +395,10 @@ func (f *readFlags) readLog(ctx context.Context, path string, opts []ingest.Opti
 		warns = append(warns, cliWording(w))
 	}
 	if f.dropMissing {
-		if n := dropMissingRows(s); n > 0 {
+		var n int
+		if n, rows = dropMissingRowsKept(s); n > 0 {
 			if s.Len() == 0 {
-				return nil, nil, fmt.Errorf("%s: every row has a missing value: no readings left", path)
+				return nil, nil, nil, fmt.Errorf("%s: every row has a missing value: no readings left", path)
 			}
 			warns = append(warns, fmt.Sprintf("%s: dropped %d of %d rows with a missing value (--drop-missing)", path, n, n+s.Len()))
 		}
@@ -383,13 +406,13 @@ func (f *readFlags) readLog(ctx context.Context, path string, opts []ingest.Opti
 	if checkUnits {
 		w, err := checkFieldUnits(ctx, path, s.Bx, s.By, s.Bz, opts, f.fieldUnitGiven())
 		if err != nil {
-			return nil, nil, err
+			return nil, nil, nil, err
 		}
 		if w != "" {
 			warns = append(warns, w)
 		}
 	}
-	return s, warns, nil
+	return s, rows, warns, nil
 }
 
 // The Earth's main field at the surface is about 22 000 to 67 000 nT

@@ -31,7 +31,9 @@ the gaps, the range of every column, missing values, and a guess when the
 units look wrong (the Earth's field, about 50000 nT, reads as 0.00005 in
 tesla and 0.05 in millitesla: a median |B| of 0.00005 in columns labelled
 nT is probably in tesla). Missing values and time going backwards are
-counted here, not rejected. The table gives each column's unit in the file
+counted here, not rejected. A log without a time column (a calibration
+log, which calibrate reads) is described with "time: none", without the
+sampling. The table gives each column's unit in the file
 and the unit of the values shown, after conversion: fields in nT,
 positions in metres ENU, times in seconds (as UTC dates when they are Unix
 times).
@@ -56,6 +58,9 @@ Examples:
 			if err != nil {
 				return err
 			}
+			// A log without time (a calibration log, which calibrate
+			// reads) is described too, saying it has none.
+			opts = append(opts, ingest.WithTimeOptional(true))
 			progress, done := rowProgress(stderr, "reading")
 			in, err := inspectCtx(ctx, args[0], append(opts, progress)...)
 			done()
@@ -133,7 +138,11 @@ func inspectionJSON(in *ingest.Inspection) inspectedLog {
 		out.Origin = &inspectedOrigin{Lat: o.Lat, Lon: o.Lon, H: o.H}
 	}
 	for _, c := range in.Columns {
-		out.Columns = append(out.Columns, inspectedColumn{ColumnStats: c, ValuesUnit: canonicalUnits[c.Column]})
+		vu := canonicalUnits[c.Column]
+		if c.Column == ingest.ColTime && in.NoTime {
+			vu = "" // no time column: no values
+		}
+		out.Columns = append(out.Columns, inspectedColumn{ColumnStats: c, ValuesUnit: vu})
 	}
 	out.Time = inspectedTime{TimeStats: in.Time, Largest: []inspectedGap{}}
 	for _, g := range in.Time.Largest {
@@ -169,6 +178,9 @@ func utcTime(t float64) string {
 	return time.Unix(int64(sec), int64(math.Round((t-sec)*1e9))).UTC().Round(time.Millisecond).Format("2006-01-02T15:04:05.999Z")
 }
 
+// noTimeNote is what inspect says of a log without a time column.
+const noTimeNote = "the log has no time column: it is fit for calibrate only (locate, convert and replay need time)"
+
 func printInspection(w io.Writer, in *ingest.Inspection) {
 	tw := tabwriter.NewWriter(w, 0, 4, 2, ' ', 0)
 	fmt.Fprintf(tw, "file\t%s (%s)\n", in.File, in.Format)
@@ -184,6 +196,8 @@ func printInspection(w io.Writer, in *ingest.Inspection) {
 	t := in.Time
 	epoch := t.StartUTC != ""
 	switch {
+	case in.NoTime:
+		fmt.Fprintf(tw, "time\tnone: %s\n", noTimeNote)
 	case in.Rows == 0:
 		fmt.Fprintf(tw, "time\t-\n")
 	case epoch:
@@ -226,7 +240,7 @@ func printInspection(w io.Writer, in *ingest.Inspection) {
 				}
 			}
 		}
-		if vu == "" {
+		if vu == "" || (c.Column == ingest.ColTime && in.NoTime) {
 			vu = "-"
 		}
 		fu := c.Unit

@@ -302,7 +302,8 @@ in the summary's, the result document's and the report's warnings.
 With -o DIR it writes results.json (the result document), results.csv,
 findings.csv (one row per finding), route.geojson and report.html (the crew
 report) into DIR; the directory is
-written whole or not at all, and its parent must exist. An existing DIR
+written whole or not at all, and missing parents are made (the nearest
+existing one must be a directory that can be written in). An existing DIR
 is replaced only when it holds nothing but those files: a DIR holding any
 other file is refused (a usage error, before any work), so that a mistyped
 -o cannot replace unrelated work. --json prints the result document on
@@ -983,6 +984,16 @@ func fmtBaseTime(t float64) string {
 // ingest reads a base log, which takes no --header or --comment); an
 // IAGA-2002 file's are the lines not ending in "|".
 func baseRowLines(path string, rows []int) []int {
+	return dataRowLines(path, rows, "#", true)
+}
+
+// dataRowLines is baseRowLines for a CSV file read with the comment
+// prefix comment ("" for none) and, when headerLine, a header line (not
+// when the names are given with --header). A line of delimiters and
+// blanks alone is blank, as ingest reads it; a line with an unpaired
+// quote (a quoted field may hold a newline) gives nil, as the lines can
+// then not be counted as ingest counts them.
+func dataRowLines(path string, rows []int, comment string, headerLine bool) []int {
 	f, err := os.Open(path)
 	if err != nil {
 		return nil
@@ -1000,11 +1011,18 @@ func baseRowLines(path string, rows []int) []int {
 	}
 	sc := bufio.NewScanner(br)
 	sc.Buffer(make([]byte, 0, 1<<16), 1<<24)
-	line, row, header := 0, -1, format == ingest.FormatIAGA
+	line, row, header := 0, -1, format == ingest.FormatIAGA || !headerLine
 	found := 0
 	for sc.Scan() && found < len(want) {
 		line++
-		t := strings.TrimSpace(sc.Text())
+		raw := sc.Text()
+		if line == 1 {
+			raw = strings.TrimPrefix(raw, "\xef\xbb\xbf") // UTF-8 byte order mark
+			if r := strings.TrimRight(raw, "\r"); format == ingest.FormatCSV && len(r) == 5 && strings.EqualFold(r[:4], "sep=") {
+				continue // a spreadsheet's "sep=;" line
+			}
+		}
+		t := strings.TrimSpace(raw)
 		if t == "" {
 			continue
 		}
@@ -1013,7 +1031,13 @@ func baseRowLines(path string, rows []int) []int {
 				continue
 			}
 		} else {
-			if strings.HasPrefix(t, "#") {
+			if comment != "" && strings.HasPrefix(t, comment) {
+				continue
+			}
+			if strings.Count(t, `"`)%2 != 0 {
+				return nil
+			}
+			if strings.Trim(t, ",;\t |") == "" {
 				continue
 			}
 			if !header {
@@ -1560,6 +1584,10 @@ func checkOutDir(dir string, keep []string) error {
 	}
 	if !fi.IsDir() {
 		return usageErrorf("-o %s: exists and is not a directory", dir)
+	}
+	// The results replace it from a sibling made in its parent.
+	if err := checkWritableDir(filepath.Dir(filepath.Clean(dir))); err != nil {
+		return fmt.Errorf("-o %s: %w", dir, err)
 	}
 	entries, err := os.ReadDir(dir)
 	if err != nil {

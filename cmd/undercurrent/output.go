@@ -183,8 +183,9 @@ func notThere(err error) bool {
 
 // checkDirParents checks, before any work, the parents of an output
 // directory dir that does not exist yet: the nearest one that exists must
-// be a directory (the missing ones are made by makeParents when the
-// results are written). Like checkParentDir, a problem is a usage error.
+// be a directory that can be written in (the missing ones are made by
+// makeParents when the results are written). Like checkParentDir, a
+// problem is a usage error.
 func checkDirParents(dir string) error {
 	for p := filepath.Dir(filepath.Clean(dir)); ; p = filepath.Dir(p) {
 		fi, err := os.Stat(p)
@@ -199,8 +200,27 @@ func checkDirParents(dir string) error {
 		case !fi.IsDir():
 			return usageErrorf("output directory %s is not a directory", p)
 		}
-		return nil
+		return checkWritableDir(p)
 	}
+}
+
+// checkWritableDir checks, before any work, that a directory can be
+// written in, by making an empty directory in it and removing it again:
+// permissions, an immutable directory, a read-only file system and ACLs
+// are all seen as the write of the results would see them. Before, a
+// locate -o under a directory that could not be written in ran the whole
+// fit and then failed with "mkdir ...: operation not permitted".
+func checkWritableDir(p string) error {
+	probe, err := os.MkdirTemp(p, ".undercurrent-probe-")
+	if err != nil {
+		var pe *os.PathError
+		if errors.As(err, &pe) {
+			err = pe.Err
+		}
+		return usageErrorf("output directory %s cannot be written in (%v)", p, err)
+	}
+	os.Remove(probe)
+	return nil
 }
 
 // makeParents makes the missing parent directories of dir, outermost
