@@ -202,22 +202,87 @@ func commissionLines(p *inverse.Problem, res *inverse.Result, stated []Conductor
 // refitPair fits the centre c, direction d and core axis u of a pair of
 // lines spaced sp (m) to the readings of p, with the sources others held
 // and every current (and the uniform background) fitted linearly by
-// inverse.FitStrengths: Levenberg-Marquardt (More 1978) on five geometry
-// parameters (the centre's shift across d, d's tilt, u's turn about d)
-// with a forward-difference Jacobian, from the given values. u is
-// returned perpendicular to d, on the side of the given u.
+// inverse.FitStrengths; see refitGroups. u is returned perpendicular to
+// d, on the side of the given u.
 func refitPair(p *inverse.Problem, others []inverse.Source, c, d, u [3]float64, sp float64) ([3]float64, [3]float64, [3]float64, error) {
-	e1 := unit(perp(u, d))
+	g, _, err := refitGroups(p, []fitGroup{{c: c, d: d, u: u, sp: sp}}, others)
+	if err != nil {
+		return c, d, u, err
+	}
+	return g[0].c, g[0].d, g[0].u, nil
+}
+
+// fitGroup is one line through c along d (sp 0), or a go-and-return pair
+// of lines along d held at spacing sp, at c + u sp/2 and c - u sp/2.
+type fitGroup struct {
+	c, d, u [3]float64
+	sp      float64
+}
+
+// nparam is the number of geometry parameters of g: the shift of c
+// across d (2) and the tilt of d (2), and for a pair the turn of u about
+// d.
+func (g fitGroup) nparam() int {
+	if g.sp > 0 {
+		return 5
+	}
+	return 4
+}
+
+// at is g moved by the parameters x (nparam of them).
+func (g fitGroup) at(x []float64) fitGroup {
+	d := unit(g.d)
+	var e1 [3]float64
+	if g.sp > 0 {
+		e1 = unit(perp(g.u, d))
+	} else if e1 = cross([3]float64{0, 0, 1}, d); norm(e1) < 1e-9 {
+		e1 = [3]float64{1, 0, 0}
+	}
+	e1 = unit(perp(e1, d))
 	e2 := cross(d, e1)
-	geom := func(x []float64) ([3]float64, [3]float64, [3]float64) {
-		dd := unit(add(d, add(scale(e1, x[2]), scale(e2, x[3]))))
-		cc := add(c, add(scale(e1, x[0]), scale(e2, x[1])))
-		uu := unit(perp(add(scale(e1, math.Cos(x[4])), scale(e2, math.Sin(x[4]))), dd))
-		return cc, dd, uu
+	out := fitGroup{sp: g.sp}
+	out.d = unit(add(d, add(scale(e1, x[2]), scale(e2, x[3]))))
+	out.c = add(g.c, add(scale(e1, x[0]), scale(e2, x[1])))
+	if g.sp > 0 {
+		out.u = unit(perp(add(scale(e1, math.Cos(x[4])), scale(e2, math.Sin(x[4]))), out.d))
+	}
+	return out
+}
+
+// lines are g's one or two lines.
+func (g fitGroup) lines() []inverse.Source {
+	if g.sp > 0 {
+		return []inverse.Source{inverse.Line{Point: add(g.c, scale(g.u, g.sp/2)), Dir: g.d}, inverse.Line{Point: add(g.c, scale(g.u, -g.sp/2)), Dir: g.d}}
+	}
+	return []inverse.Source{inverse.Line{Point: g.c, Dir: g.d}}
+}
+
+// refitGroups fits the geometry of the groups to the readings of p, with
+// the sources fixed held and every current (and the uniform background)
+// fitted linearly by inverse.FitStrengths: Levenberg-Marquardt (More
+// 1978) on the groups' parameters (fitGroup.nparam) with a
+// forward-difference Jacobian, from the given values. It returns the
+// fitted groups and their residual sum of squares (nT^2).
+func refitGroups(p *inverse.Problem, groups []fitGroup, fixed []inverse.Source) ([]fitGroup, float64, error) {
+	np := 0
+	for _, g := range groups {
+		np += g.nparam()
+	}
+	geom := func(x []float64) []fitGroup {
+		out := make([]fitGroup, len(groups))
+		o := 0
+		for i, g := range groups {
+			out[i] = g.at(x[o : o+g.nparam()])
+			o += g.nparam()
+		}
+		return out
 	}
 	resid := func(x []float64) ([]float64, error) {
-		cc, dd, uu := geom(x)
-		src := append([]inverse.Source{inverse.Line{Point: add(cc, scale(uu, sp/2)), Dir: dd}, inverse.Line{Point: add(cc, scale(uu, -sp/2)), Dir: dd}}, others...)
+		var src []inverse.Source
+		for _, g := range geom(x) {
+			src = append(src, g.lines()...)
+		}
+		src = append(src, fixed...)
 		r, err := inverse.FitStrengths(p, src, nil)
 		if err != nil {
 			return nil, err
@@ -233,11 +298,10 @@ func refitPair(p *inverse.Problem, others []inverse.Source, c, d, u [3]float64, 
 		}
 		return v, nil
 	}
-	const np = 5
 	x := make([]float64, np)
 	r, err := resid(x)
 	if err != nil {
-		return c, d, u, err
+		return groups, 0, err
 	}
 	rss := dot2(r)
 	lambda := 1e-3
@@ -249,7 +313,7 @@ func refitPair(p *inverse.Problem, others []inverse.Source, c, d, u [3]float64, 
 			xh[j] += 1e-7
 			rh, err := resid(xh)
 			if err != nil {
-				return c, d, u, err
+				return groups, 0, err
 			}
 			for i := range r {
 				J.Set(i, j, (rh[i]-r[i])/1e-7)
@@ -276,7 +340,10 @@ func refitPair(p *inverse.Problem, others []inverse.Source, c, d, u [3]float64, 
 			}
 			rn, err := resid(xn)
 			if err != nil {
-				return c, d, u, err
+				// A step onto a singular geometry (two lines on one
+				// another): a shorter one.
+				lambda *= 10
+				continue
 			}
 			if s := dot2(rn); s < rss {
 				done := rss-s <= 1e-12*rss
@@ -293,8 +360,7 @@ func refitPair(p *inverse.Problem, others []inverse.Source, c, d, u [3]float64, 
 			break
 		}
 	}
-	cc, dd, uu := geom(x)
-	return cc, dd, uu, nil
+	return geom(x), rss, nil
 }
 
 func dot2(v []float64) float64 {
@@ -333,54 +399,17 @@ func commissionMisfit(p *inverse.Problem, windowSigma float64, conds []Conductor
 		return err
 	}
 	if r.RMS > math.Sqrt(maxCommissionChi2)*windowSigma {
-		return fmt.Errorf("the %d fitted lines miss the commissioning readings by %.3g nT RMS, %.3g times one window's noise: the conductors are not where the fit put them",
-			len(conds), r.RMS, r.RMS/windowSigma)
+		return &misfitError{fmt.Errorf("the %d fitted lines miss the commissioning readings by %.3g nT RMS, %.3g times one window's noise: the conductors are not where the fit put them",
+			len(conds), r.RMS, r.RMS/windowSigma)}
 	}
 	return nil
 }
 
-// commissionStatedPair fits two parallel lines at the spacing of the two
-// stated conductors' points, from where the site file puts them: centre
-// midway, direction the stated one (else horizontal, across the line
-// joining the points, turned north), core axis through the points; see
-// refitPair.
-func commissionStatedPair(p *inverse.Problem, stated []ConductorConfig) ([]ConductorConfig, error) {
-	a, b := stated[0], stated[1]
-	c := scale(add(a.Point, b.Point), 0.5)
-	sep := sub(a.Point, b.Point)
-	var d [3]float64
-	switch {
-	case a.dirSet:
-		d = unit(a.Direction)
-	case b.dirSet:
-		d = unit(b.Direction)
-	default:
-		d = cross([3]float64{0, 0, 1}, sep)
-		if norm(d) < 1e-9 {
-			d = [3]float64{0, 1, 0}
-		}
-		d = northward(unit(d))
-	}
-	u := perp(sep, d)
-	sp := norm(u)
-	if sp < 1e-3 {
-		return nil, fmt.Errorf("conductors %q and %q: points %.2g m apart across the conductors", a.Name, b.Name, sp)
-	}
-	c, d, u, err := refitPair(p, nil, c, d, unit(u), sp)
-	if err != nil {
-		return nil, err
-	}
-	out := []ConductorConfig{
-		{Name: a.Name, Kind: "line", Point: add(c, scale(u, sp/2)), Direction: d},
-		{Name: b.Name, Kind: "line", Point: add(c, scale(u, -sp/2)), Direction: d},
-	}
-	for i, st := range stated {
-		if st.dirSet && dot(out[i].Direction, st.Direction) < 0 {
-			out[i].Direction = scale(out[i].Direction, -1)
-		}
-	}
-	return out, nil
-}
+// misfitError is commissionMisfit's refusal.
+type misfitError struct{ err error }
+
+func (e *misfitError) Error() string { return e.err.Error() }
+func (e *misfitError) Unwrap() error { return e.err }
 
 // needsSiteError is a commissioning failure that more readings would not
 // mend: the site file must say more.
