@@ -15,7 +15,8 @@ import (
 //
 // Names. When the site file gives the conductors' points (roughly where
 // each runs), each fitted line takes the name of the conductor whose point
-// lies nearest it (the assignment with the least total distance). Without
+// lies nearest it (the assignment with the least total squared distance,
+// which a common offset of the points does not change). Without
 // points the lines are named in the order the site file lists the
 // conductors, from left to right looking along their common direction
 // (west to east for conductors running north), shallower first where two
@@ -81,7 +82,13 @@ func commissionLines(p *inverse.Problem, res *inverse.Result, stated []Conductor
 	}
 	if withPoints {
 		// The fitted line (a pair's line: the pair's centre line) each
-		// conductor's point lies nearest, by the least total distance.
+		// conductor's point lies nearest, by the least total squared
+		// distance: for lines of one direction that is the assignment
+		// that best matches the points moved by any common offset (the
+		// sum of squares differs between assignments only by the sum of
+		// the points' dot products with their lines), so points drawn a
+		// few spacings to one side keep their names; the least total
+		// distance ties for any offset of a spacing or more.
 		axis := func(k int) ([3]float64, [3]float64) {
 			if pi := lines[k].pair; pi >= 0 {
 				return res.Pairs[pi].Point, unit(res.Pairs[pi].Dir)
@@ -92,7 +99,8 @@ func commissionLines(p *inverse.Problem, res *inverse.Result, stated []Conductor
 		for k := range lines {
 			pt, d := axis(k)
 			for j := range stated {
-				cost[k] = append(cost[k], norm(perp(sub(stated[j].Point, pt), d)))
+				v := perp(sub(stated[j].Point, pt), d)
+				cost[k] = append(cost[k], dot(v, v))
 			}
 		}
 		owner = leastCostAssignment(cost)

@@ -158,8 +158,24 @@ func commissionFromPoints(p *inverse.Problem, stated []ConductorConfig, start [3
 		}
 		gi++
 	}
-	// Names and directions: the stated one, else the first stated, else
-	// the first line's turned north.
+	// Names: lines started from the points can cross on the way (two
+	// cores' lines swapped fit as well, their currents swapped), so each
+	// takes the name of the point nearest it, by the least total squared
+	// distance as in commissionLines.
+	cost := make([][]float64, n)
+	for k := range out {
+		for j := range stated {
+			v := perp(sub(stated[j].Point, out[k].Point), unit(out[k].Direction))
+			cost[k] = append(cost[k], dot(v, v))
+		}
+	}
+	named := make([]ConductorConfig, n)
+	for k, j := range leastCostAssignment(cost) {
+		named[j] = out[k]
+	}
+	out = named
+	// Directions: the stated one, else the first stated, else the first
+	// line's turned north.
 	want := ref
 	if !anyDir(stated) {
 		want = northward(out[0].Direction)
