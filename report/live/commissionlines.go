@@ -73,6 +73,9 @@ func commissionLines(p *inverse.Problem, res *inverse.Result, stated []Conductor
 				"whose current and spacing they do not separate, so neither core's current can be found: give each [[asset.conductor]] its point "+
 				"(where it runs, roughly) in the site file, from which the pair's spacing is taken", pr.Point[0], pr.Point[1], pr.Point[2], pr.Moment)}
 		}
+		if err := looseLines(p, res, len(lines)); err != nil {
+			return nil, err
+		}
 	}
 
 	// owner[k] is the stated conductor of line k.
@@ -205,6 +208,76 @@ func commissionLines(p *inverse.Problem, res *inverse.Result, stated []Conductor
 		out[owner[k]] = ConductorConfig{Name: name, Kind: "line", Point: l.point, Direction: l.dir}
 	}
 	return out, nil
+}
+
+// looseLines refuses, for good, two of the first n fitted lines of res
+// lying closer together than to the nearest sensor whose spacing the
+// readings do not fix: held at half or at twice their fitted spacing
+// (centre, direction, axis and every other line fitted again,
+// refitGroups), the fit's chi-square rises by less than
+// minPairDeltaChi2. Such lines are a go-and-return pair (with a third
+// conductor, say) that the fit did not report as one: the field of a line
+// dipole depends on current times spacing only, so the fit's spacing,
+// and its currents with it, are of its own choosing.
+func looseLines(p *inverse.Problem, res *inverse.Result, n int) error {
+	for k := 0; k < n; k++ {
+		for l := k + 1; l < n; l++ {
+			a, b := res.Sources[k], res.Sources[l]
+			d := unit(a.Dir)
+			mid := scale(add(a.Point, b.Point), 0.5)
+			near := math.Inf(1)
+			for _, pt := range p.Points {
+				near = math.Min(near, norm(perp(sub(pt, mid), d)))
+			}
+			u := perp(sub(a.Point, b.Point), d)
+			sp := norm(u)
+			if sp >= near || sp < 1e-6 {
+				continue
+			}
+			rss := func(f float64) (float64, int, bool) {
+				groups := []fitGroup{{c: mid, d: d, u: unit(u), sp: f * sp}}
+				np := 5
+				for j := 0; j < n; j++ {
+					if j != k && j != l {
+						groups = append(groups, fitGroup{c: res.Sources[j].Point, d: unit(res.Sources[j].Dir)})
+						np += 4
+					}
+				}
+				_, r, err := refitGroups(p, groups, nil)
+				return r, np, err == nil
+			}
+			r1, np, ok := rss(1)
+			if !ok {
+				continue
+			}
+			s2 := p.Sigma * p.Sigma
+			if !(s2 > 0) {
+				m := len(p.Points) * 3
+				if p.Phasors != nil {
+					m *= 2
+				}
+				if dof := m - np; dof > 0 {
+					s2 = r1 / float64(dof)
+				}
+			}
+			if !(s2 > 0) {
+				continue
+			}
+			loose := false
+			for _, f := range []float64{0.5, 2} {
+				if r, _, ok := rss(f); ok && (r-r1)/s2 < minPairDeltaChi2 {
+					loose = true
+				}
+			}
+			if loose {
+				return &needsSiteError{fmt.Errorf("the fitted lines at %.2f m east, %.2f m up and %.2f m east, %.2f m up (%.3g A and %.3g A), %.2f m apart against %.2f m from the sensors, "+
+					"fit the readings as well at half or twice that spacing: they are a go-and-return pair whose current and spacing the readings do not separate, so neither core's current can be found: "+
+					"give each [[asset.conductor]] its point (where it runs, roughly) in the site file, from which the pair's spacing is taken",
+					a.Point[0], a.Point[2], b.Point[0], b.Point[2], a.Current, b.Current, sp, near)}
+			}
+		}
+	}
+	return nil
 }
 
 // refitPair fits the centre c, direction d and core axis u of a pair of

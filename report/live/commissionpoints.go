@@ -90,6 +90,19 @@ func commissionFromPoints(p *inverse.Problem, stated []ConductorConfig, start [3
 			held = append(held, fitGroup{c: stated[j].Point, d: dirs[j]})
 		}
 	}
+	// The unknowns: each group's geometry, each line's current and the
+	// background, real and imaginary parts for AC; a fit with as many as
+	// there are readings fits anything.
+	unknowns := 3 + n
+	for _, g := range held {
+		unknowns += g.nparam()
+	}
+	if p.Phasors != nil {
+		unknowns += 3 + n
+	}
+	if m := len(p.Points) * readingsPerSensor(p); m <= unknowns {
+		return nil, fmt.Errorf("%d sensors give %d readings, too few for the %d unknowns of %d lines fitted from their points", len(p.Points), m, unknowns, n)
+	}
 	// split returns groups with pair i (of groups) as two single lines.
 	split := func(groups []fitGroup, i int) []fitGroup {
 		g := groups[i]

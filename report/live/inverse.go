@@ -218,6 +218,11 @@ type InverseCommissioner struct{}
 func (InverseCommissioner) Commission(in *SolveInput, stated []ConductorConfig) ([]ConductorConfig, error) {
 	p := &inverse.Problem{Points: in.Points, Fields: in.Fields, Phasors: in.Phasors, Sigma: in.Sigma}
 	res, err := inverse.FitLines(p, &inverse.Settings{Count: len(stated)})
+	if err == nil && res.DOF <= 0 {
+		// As many unknowns as readings or more: any lines fit.
+		err = &needsSiteError{fmt.Errorf("%d sensors give %d readings, too few for %d free lines (where each runs, its current, and the background field): "+
+			"add sensors, or give the conductors' points, or hold them where they run with model = \"fixed\"", len(p.Points), len(p.Points)*readingsPerSensor(p), len(res.Sources))}
+	}
 	var conds []ConductorConfig
 	if err == nil {
 		conds, err = commissionLines(p, res, stated)
@@ -283,4 +288,13 @@ func clearlyBetter(in *SolveInput, a, b []ConductorConfig) bool {
 		return fa.Chi2+minPairDeltaChi2 < fb.Chi2
 	}
 	return fa.RMS < 0.8*fb.RMS
+}
+
+// readingsPerSensor is the number of real readings one sensor gives: three
+// field components, each a real and an imaginary part for AC.
+func readingsPerSensor(p *inverse.Problem) int {
+	if p.Phasors != nil {
+		return 6
+	}
+	return 3
 }
