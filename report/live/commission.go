@@ -8,6 +8,7 @@ import (
 	"math"
 	"math/cmplx"
 	"sort"
+	"strings"
 
 	"github.com/nats-io/nats.go/jetstream"
 )
@@ -199,6 +200,10 @@ func (w *assetWorker) commission(win *window) error {
 	for _, c := range conds {
 		w.log.Info("commissioned conductor", "name", c.Name, "kind", c.Kind, "point", c.Point, "direction", c.Direction)
 	}
+	if far := farFromPoints(conds, w.asset.Conductors, farFromPoint); len(far) > 0 {
+		w.log.Warn("commissioned conductors lie far from their points in the site file: check the points, or recommission",
+			"conductors", strings.Join(far, ", "), "limit_m", farFromPoint)
+	}
 	if err := w.setGeometry(conds); err != nil {
 		return err
 	}
@@ -211,6 +216,12 @@ func (w *assetWorker) commission(win *window) error {
 	}
 	return nil
 }
+
+// farFromPoint is the distance (m) across its line from the point the
+// site file gives a commissioned conductor beyond which it is warned of:
+// a point is where the conductor runs, roughly, and a metre is several
+// core spacings and more than a drawing's usual error.
+const farFromPoint = 1.0
 
 // sameNames reports whether a and b hold the same conductor names, in any
 // order.

@@ -15,7 +15,8 @@ import (
 //
 // Names. When the site file gives the conductors' points (roughly where
 // each runs), each fitted line takes the name of the conductor whose point
-// lies nearest it (the assignment with the least total distance). Without
+// lies nearest it (the assignment with the least total squared distance,
+// which a common offset of the points does not change). Without
 // points the lines are named in the order the site file lists the
 // conductors, from left to right looking along their common direction
 // (west to east for conductors running north), shallower first where two
@@ -72,6 +73,9 @@ func commissionLines(p *inverse.Problem, res *inverse.Result, stated []Conductor
 				"whose current and spacing they do not separate, so neither core's current can be found: give each [[asset.conductor]] its point "+
 				"(where it runs, roughly) in the site file, from which the pair's spacing is taken", pr.Point[0], pr.Point[1], pr.Point[2], pr.Moment)}
 		}
+		if err := looseLines(p, res, len(lines)); err != nil {
+			return nil, err
+		}
 	}
 
 	// owner[k] is the stated conductor of line k.
@@ -81,7 +85,13 @@ func commissionLines(p *inverse.Problem, res *inverse.Result, stated []Conductor
 	}
 	if withPoints {
 		// The fitted line (a pair's line: the pair's centre line) each
-		// conductor's point lies nearest, by the least total distance.
+		// conductor's point lies nearest, by the least total squared
+		// distance: for lines of one direction that is the assignment
+		// that best matches the points moved by any common offset (the
+		// sum of squares differs between assignments only by the sum of
+		// the points' dot products with their lines), so points drawn a
+		// few spacings to one side keep their names; the least total
+		// distance ties for any offset of a spacing or more.
 		axis := func(k int) ([3]float64, [3]float64) {
 			if pi := lines[k].pair; pi >= 0 {
 				return res.Pairs[pi].Point, unit(res.Pairs[pi].Dir)
@@ -92,7 +102,8 @@ func commissionLines(p *inverse.Problem, res *inverse.Result, stated []Conductor
 		for k := range lines {
 			pt, d := axis(k)
 			for j := range stated {
-				cost[k] = append(cost[k], norm(perp(sub(stated[j].Point, pt), d)))
+				v := perp(sub(stated[j].Point, pt), d)
+				cost[k] = append(cost[k], dot(v, v))
 			}
 		}
 		owner = leastCostAssignment(cost)
@@ -199,25 +210,160 @@ func commissionLines(p *inverse.Problem, res *inverse.Result, stated []Conductor
 	return out, nil
 }
 
+// looseLines refuses, for good, two of the first n fitted lines of res
+// lying closer together than to the nearest sensor whose spacing the
+// readings do not fix: held at half or at twice their fitted spacing
+// (centre, direction, axis and every other line fitted again,
+// refitGroups), the fit's chi-square rises by less than
+// minPairDeltaChi2. Such lines are a go-and-return pair (with a third
+// conductor, say) that the fit did not report as one: the field of a line
+// dipole depends on current times spacing only, so the fit's spacing,
+// and its currents with it, are of its own choosing.
+func looseLines(p *inverse.Problem, res *inverse.Result, n int) error {
+	for k := 0; k < n; k++ {
+		for l := k + 1; l < n; l++ {
+			a, b := res.Sources[k], res.Sources[l]
+			d := unit(a.Dir)
+			mid := scale(add(a.Point, b.Point), 0.5)
+			near := math.Inf(1)
+			for _, pt := range p.Points {
+				near = math.Min(near, norm(perp(sub(pt, mid), d)))
+			}
+			u := perp(sub(a.Point, b.Point), d)
+			sp := norm(u)
+			if sp >= near || sp < 1e-6 {
+				continue
+			}
+			rss := func(f float64) (float64, int, bool) {
+				groups := []fitGroup{{c: mid, d: d, u: unit(u), sp: f * sp}}
+				np := 5
+				for j := 0; j < n; j++ {
+					if j != k && j != l {
+						groups = append(groups, fitGroup{c: res.Sources[j].Point, d: unit(res.Sources[j].Dir)})
+						np += 4
+					}
+				}
+				_, r, err := refitGroups(p, groups, nil)
+				return r, np, err == nil
+			}
+			r1, np, ok := rss(1)
+			if !ok {
+				continue
+			}
+			s2 := p.Sigma * p.Sigma
+			if !(s2 > 0) {
+				m := len(p.Points) * 3
+				if p.Phasors != nil {
+					m *= 2
+				}
+				if dof := m - np; dof > 0 {
+					s2 = r1 / float64(dof)
+				}
+			}
+			if !(s2 > 0) {
+				continue
+			}
+			loose := false
+			for _, f := range []float64{0.5, 2} {
+				if r, _, ok := rss(f); ok && (r-r1)/s2 < minPairDeltaChi2 {
+					loose = true
+				}
+			}
+			if loose {
+				return &needsSiteError{fmt.Errorf("the fitted lines at %.2f m east, %.2f m up and %.2f m east, %.2f m up (%.3g A and %.3g A), %.2f m apart against %.2f m from the sensors, "+
+					"fit the readings as well at half or twice that spacing: they are a go-and-return pair whose current and spacing the readings do not separate, so neither core's current can be found: "+
+					"give each [[asset.conductor]] its point (where it runs, roughly) in the site file, from which the pair's spacing is taken",
+					a.Point[0], a.Point[2], b.Point[0], b.Point[2], a.Current, b.Current, sp, near)}
+			}
+		}
+	}
+	return nil
+}
+
 // refitPair fits the centre c, direction d and core axis u of a pair of
 // lines spaced sp (m) to the readings of p, with the sources others held
 // and every current (and the uniform background) fitted linearly by
-// inverse.FitStrengths: Levenberg-Marquardt (More 1978) on five geometry
-// parameters (the centre's shift across d, d's tilt, u's turn about d)
-// with a forward-difference Jacobian, from the given values. u is
-// returned perpendicular to d, on the side of the given u.
+// inverse.FitStrengths; see refitGroups. u is returned perpendicular to
+// d, on the side of the given u.
 func refitPair(p *inverse.Problem, others []inverse.Source, c, d, u [3]float64, sp float64) ([3]float64, [3]float64, [3]float64, error) {
-	e1 := unit(perp(u, d))
+	g, _, err := refitGroups(p, []fitGroup{{c: c, d: d, u: u, sp: sp}}, others)
+	if err != nil {
+		return c, d, u, err
+	}
+	return g[0].c, g[0].d, g[0].u, nil
+}
+
+// fitGroup is one line through c along d (sp 0), or a go-and-return pair
+// of lines along d held at spacing sp, at c + u sp/2 and c - u sp/2.
+type fitGroup struct {
+	c, d, u [3]float64
+	sp      float64
+}
+
+// nparam is the number of geometry parameters of g: the shift of c
+// across d (2) and the tilt of d (2), and for a pair the turn of u about
+// d.
+func (g fitGroup) nparam() int {
+	if g.sp > 0 {
+		return 5
+	}
+	return 4
+}
+
+// at is g moved by the parameters x (nparam of them).
+func (g fitGroup) at(x []float64) fitGroup {
+	d := unit(g.d)
+	var e1 [3]float64
+	if g.sp > 0 {
+		e1 = unit(perp(g.u, d))
+	} else if e1 = cross([3]float64{0, 0, 1}, d); norm(e1) < 1e-9 {
+		e1 = [3]float64{1, 0, 0}
+	}
+	e1 = unit(perp(e1, d))
 	e2 := cross(d, e1)
-	geom := func(x []float64) ([3]float64, [3]float64, [3]float64) {
-		dd := unit(add(d, add(scale(e1, x[2]), scale(e2, x[3]))))
-		cc := add(c, add(scale(e1, x[0]), scale(e2, x[1])))
-		uu := unit(perp(add(scale(e1, math.Cos(x[4])), scale(e2, math.Sin(x[4]))), dd))
-		return cc, dd, uu
+	out := fitGroup{sp: g.sp}
+	out.d = unit(add(d, add(scale(e1, x[2]), scale(e2, x[3]))))
+	out.c = add(g.c, add(scale(e1, x[0]), scale(e2, x[1])))
+	if g.sp > 0 {
+		out.u = unit(perp(add(scale(e1, math.Cos(x[4])), scale(e2, math.Sin(x[4]))), out.d))
+	}
+	return out
+}
+
+// lines are g's one or two lines.
+func (g fitGroup) lines() []inverse.Source {
+	if g.sp > 0 {
+		return []inverse.Source{inverse.Line{Point: add(g.c, scale(g.u, g.sp/2)), Dir: g.d}, inverse.Line{Point: add(g.c, scale(g.u, -g.sp/2)), Dir: g.d}}
+	}
+	return []inverse.Source{inverse.Line{Point: g.c, Dir: g.d}}
+}
+
+// refitGroups fits the geometry of the groups to the readings of p, with
+// the sources fixed held and every current (and the uniform background)
+// fitted linearly by inverse.FitStrengths: Levenberg-Marquardt (More
+// 1978) on the groups' parameters (fitGroup.nparam) with a
+// forward-difference Jacobian, from the given values. It returns the
+// fitted groups and their residual sum of squares (nT^2).
+func refitGroups(p *inverse.Problem, groups []fitGroup, fixed []inverse.Source) ([]fitGroup, float64, error) {
+	np := 0
+	for _, g := range groups {
+		np += g.nparam()
+	}
+	geom := func(x []float64) []fitGroup {
+		out := make([]fitGroup, len(groups))
+		o := 0
+		for i, g := range groups {
+			out[i] = g.at(x[o : o+g.nparam()])
+			o += g.nparam()
+		}
+		return out
 	}
 	resid := func(x []float64) ([]float64, error) {
-		cc, dd, uu := geom(x)
-		src := append([]inverse.Source{inverse.Line{Point: add(cc, scale(uu, sp/2)), Dir: dd}, inverse.Line{Point: add(cc, scale(uu, -sp/2)), Dir: dd}}, others...)
+		var src []inverse.Source
+		for _, g := range geom(x) {
+			src = append(src, g.lines()...)
+		}
+		src = append(src, fixed...)
 		r, err := inverse.FitStrengths(p, src, nil)
 		if err != nil {
 			return nil, err
@@ -233,11 +379,10 @@ func refitPair(p *inverse.Problem, others []inverse.Source, c, d, u [3]float64, 
 		}
 		return v, nil
 	}
-	const np = 5
 	x := make([]float64, np)
 	r, err := resid(x)
 	if err != nil {
-		return c, d, u, err
+		return groups, 0, err
 	}
 	rss := dot2(r)
 	lambda := 1e-3
@@ -249,7 +394,7 @@ func refitPair(p *inverse.Problem, others []inverse.Source, c, d, u [3]float64, 
 			xh[j] += 1e-7
 			rh, err := resid(xh)
 			if err != nil {
-				return c, d, u, err
+				return groups, 0, err
 			}
 			for i := range r {
 				J.Set(i, j, (rh[i]-r[i])/1e-7)
@@ -276,7 +421,10 @@ func refitPair(p *inverse.Problem, others []inverse.Source, c, d, u [3]float64, 
 			}
 			rn, err := resid(xn)
 			if err != nil {
-				return c, d, u, err
+				// A step onto a singular geometry (two lines on one
+				// another): a shorter one.
+				lambda *= 10
+				continue
 			}
 			if s := dot2(rn); s < rss {
 				done := rss-s <= 1e-12*rss
@@ -293,8 +441,7 @@ func refitPair(p *inverse.Problem, others []inverse.Source, c, d, u [3]float64, 
 			break
 		}
 	}
-	cc, dd, uu := geom(x)
-	return cc, dd, uu, nil
+	return geom(x), rss, nil
 }
 
 func dot2(v []float64) float64 {
@@ -333,54 +480,17 @@ func commissionMisfit(p *inverse.Problem, windowSigma float64, conds []Conductor
 		return err
 	}
 	if r.RMS > math.Sqrt(maxCommissionChi2)*windowSigma {
-		return fmt.Errorf("the %d fitted lines miss the commissioning readings by %.3g nT RMS, %.3g times one window's noise: the conductors are not where the fit put them",
-			len(conds), r.RMS, r.RMS/windowSigma)
+		return &misfitError{fmt.Errorf("the %d fitted lines miss the commissioning readings by %.3g nT RMS, %.3g times one window's noise: the conductors are not where the fit put them",
+			len(conds), r.RMS, r.RMS/windowSigma)}
 	}
 	return nil
 }
 
-// commissionStatedPair fits two parallel lines at the spacing of the two
-// stated conductors' points, from where the site file puts them: centre
-// midway, direction the stated one (else horizontal, across the line
-// joining the points, turned north), core axis through the points; see
-// refitPair.
-func commissionStatedPair(p *inverse.Problem, stated []ConductorConfig) ([]ConductorConfig, error) {
-	a, b := stated[0], stated[1]
-	c := scale(add(a.Point, b.Point), 0.5)
-	sep := sub(a.Point, b.Point)
-	var d [3]float64
-	switch {
-	case a.dirSet:
-		d = unit(a.Direction)
-	case b.dirSet:
-		d = unit(b.Direction)
-	default:
-		d = cross([3]float64{0, 0, 1}, sep)
-		if norm(d) < 1e-9 {
-			d = [3]float64{0, 1, 0}
-		}
-		d = northward(unit(d))
-	}
-	u := perp(sep, d)
-	sp := norm(u)
-	if sp < 1e-3 {
-		return nil, fmt.Errorf("conductors %q and %q: points %.2g m apart across the conductors", a.Name, b.Name, sp)
-	}
-	c, d, u, err := refitPair(p, nil, c, d, unit(u), sp)
-	if err != nil {
-		return nil, err
-	}
-	out := []ConductorConfig{
-		{Name: a.Name, Kind: "line", Point: add(c, scale(u, sp/2)), Direction: d},
-		{Name: b.Name, Kind: "line", Point: add(c, scale(u, -sp/2)), Direction: d},
-	}
-	for i, st := range stated {
-		if st.dirSet && dot(out[i].Direction, st.Direction) < 0 {
-			out[i].Direction = scale(out[i].Direction, -1)
-		}
-	}
-	return out, nil
-}
+// misfitError is commissionMisfit's refusal.
+type misfitError struct{ err error }
+
+func (e *misfitError) Error() string { return e.err.Error() }
+func (e *misfitError) Unwrap() error { return e.err }
 
 // needsSiteError is a commissioning failure that more readings would not
 // mend: the site file must say more.

@@ -205,6 +205,10 @@ type AssetInfo struct {
 	Start       string   `json:"start"`            // configured start
 	// Restart is the last restart request (Applied nil while pending).
 	Restart *RestartStatus `json:"restart,omitempty"`
+	// Stopped, when this worker holds the asset, says why its processing
+	// is stopped until the site file is mended and serve restarted (a
+	// commissioning the readings cannot do without more in the site file).
+	Stopped string `json:"stopped,omitempty"`
 }
 
 func (s *Service) assetInfo(ctx context.Context, a *AssetConfig) (AssetInfo, error) {
@@ -224,6 +228,9 @@ func (s *Service) assetInfo(ctx context.Context, a *AssetConfig) (AssetInfo, err
 		return ai, fmt.Errorf("live: asset %s: %w", a.Name, err)
 	}
 	ai.Restart = req
+	if v, ok := s.stopped.Load(a.Name); ok {
+		ai.Stopped = v.(string)
+	}
 	return ai, nil
 }
 

@@ -208,10 +208,21 @@ type InverseCommissioner struct{}
 // Commission fits as many lines as the site file lists conductors (none
 // listed: the count chosen by BIC) and returns them named after the
 // conductors, matched by geometry, with their directions made consistent;
-// see commissionLines for the rules.
+// see commissionLines for the rules. When the site file gives every
+// conductor's point the lines are also fitted from those points
+// (commissionFromPoints), and that geometry is kept unless the free fit
+// misses the readings by clearly less (chi-square lower by more than
+// minPairDeltaChi2): the readings of a go-and-return pair with a third
+// conductor can be matched about as well by lines far from where the
+// cores run, with currents ten times too small.
 func (InverseCommissioner) Commission(in *SolveInput, stated []ConductorConfig) ([]ConductorConfig, error) {
 	p := &inverse.Problem{Points: in.Points, Fields: in.Fields, Phasors: in.Phasors, Sigma: in.Sigma}
 	res, err := inverse.FitLines(p, &inverse.Settings{Count: len(stated)})
+	if err == nil && res.DOF <= 0 {
+		// As many unknowns as readings or more: any lines fit.
+		err = &needsSiteError{fmt.Errorf("%d sensors give %d readings, too few for %d free lines (where each runs, its current, and the background field): "+
+			"add sensors, or give the conductors' points, or hold them where they run with model = \"fixed\"", len(p.Points), len(p.Points)*readingsPerSensor(p), len(res.Sources))}
+	}
 	var conds []ConductorConfig
 	if err == nil {
 		conds, err = commissionLines(p, res, stated)
@@ -219,20 +230,71 @@ func (InverseCommissioner) Commission(in *SolveInput, stated []ConductorConfig) 
 	if err == nil {
 		err = commissionMisfit(p, in.WindowSigma, conds)
 	}
-	var site *needsSiteError
-	if err != nil && !errors.As(err, &site) && len(stated) == 2 && stated[0].pointSet {
-		// Two conductors with their points given (a go and its return):
-		// fit the pair at the points' spacing from where the site file
-		// puts it, for when the free fit went astray.
-		if alt, aerr := commissionStatedPair(p, stated); aerr == nil && commissionMisfit(p, in.WindowSigma, alt) == nil {
+	if len(stated) > 0 && stated[0].pointSet {
+		var start [3]float64
+		if res != nil && len(res.Sources) > 0 {
+			start = res.Sources[0].Dir
+		}
+		alt, aerr := commissionFromPoints(p, stated, start)
+		if aerr == nil {
+			aerr = commissionMisfit(p, in.WindowSigma, alt)
+		}
+		if aerr == nil && (err != nil || !clearlyBetter(in, conds, alt)) {
 			return alt, nil
 		}
+		if err != nil {
+			return nil, fmt.Errorf("%w (fitted from the site file's points: %v)", err, aerr)
+		}
+		return conds, nil
 	}
-	if err != nil && len(stated) > 1 && !stated[0].pointSet && !errors.As(err, &site) {
+	var site *needsSiteError
+	if err != nil && len(stated) > 1 && !errors.As(err, &site) {
 		err = fmt.Errorf("%w; giving each [[asset.conductor]] its point (where it runs, roughly) lets a go-and-return pair be fitted at its spacing", err)
+		// Lines that miss the readings without points miss them the same
+		// with more readings: stop until the site file gives the points.
+		var mis *misfitError
+		if errors.As(err, &mis) {
+			err = &needsSiteError{err}
+		}
 	}
 	if err != nil {
 		return nil, err
 	}
 	return conds, nil
+}
+
+// clearlyBetter reports whether the conductors a miss the readings of in
+// by clearly less than b: chi-square lower by more than
+// minPairDeltaChi2, or, with the noise not known, RMS lower by a fifth.
+func clearlyBetter(in *SolveInput, a, b []ConductorConfig) bool {
+	fit := func(c []ConductorConfig) *SolveOutput {
+		est, err := NewInverseEstimator("", c)
+		if err != nil {
+			return nil
+		}
+		out, err := est.Solve(in)
+		if err != nil {
+			return nil
+		}
+		return out
+	}
+	fa, fb := fit(a), fit(b)
+	switch {
+	case fa == nil:
+		return false
+	case fb == nil:
+		return true
+	case in.Sigma > 0 || len(in.Sigmas) > 0:
+		return fa.Chi2+minPairDeltaChi2 < fb.Chi2
+	}
+	return fa.RMS < 0.8*fb.RMS
+}
+
+// readingsPerSensor is the number of real readings one sensor gives: three
+// field components, each a real and an imaginary part for AC.
+func readingsPerSensor(p *inverse.Problem) int {
+	if p.Phasors != nil {
+		return 6
+	}
+	return 3
 }

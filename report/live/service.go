@@ -63,6 +63,10 @@ type Service struct {
 	httpAddr     string
 	memory       bool
 
+	// stopped holds, per asset this worker has stopped for want of a
+	// site file that says more (a commissioning needsSiteError), why.
+	stopped sync.Map
+
 	mu       sync.Mutex
 	held     map[string]*holding
 	ready    chan struct{}

@@ -112,6 +112,10 @@ func (w *assetWorker) run(ctx context.Context) error {
 	}
 	for {
 		req, rev, err := w.consume(ctx)
+		var site *needsSiteError
+		if errors.As(err, &site) {
+			return w.halt(ctx, err)
+		}
 		if err != nil || req == nil {
 			return err
 		}
@@ -119,6 +123,20 @@ func (w *assetWorker) run(ctx context.Context) error {
 			return err
 		}
 	}
+}
+
+// halt stops the asset for a failure that only a mended site file can
+// mend (a commissioning needsSiteError): the error is logged once and
+// shown on the asset's endpoint, and the worker holds the asset without
+// reading its data until ctx ends (serve stops), so that neither it nor
+// another worker takes it again to fail the same way every lease round.
+// The data stays in the broker for when serve runs with the mended file.
+func (w *assetWorker) halt(ctx context.Context, err error) error {
+	w.log.Error("asset stopped until the site file is mended and serve restarted", "err", err)
+	w.svc.stopped.Store(w.asset.Name, err.Error())
+	defer w.svc.stopped.Delete(w.asset.Name)
+	<-ctx.Done()
+	return nil
 }
 
 // consume reads UC_DATA from the checkpoint until ctx ends, then drains
