@@ -40,7 +40,9 @@ times).
 
 In the examples, survey.csv is the survey log of the walk-through in
 README.md, and testdata/examples/kestrel-moor-logger.csv an invented
-logger's traverse with its field in uT under its own column names.
+logger's traverse with its field in uT under its own column names;
+../shared/data/iaga2002 holds observatory minute files (IAGA-2002, open
+data kept beside the repository, not in it): use any IAGA-2002 file.
 
 Examples:
   undercurrent inspect survey.csv
