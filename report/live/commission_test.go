@@ -66,20 +66,7 @@ func TestCommissionThenHold(t *testing.T) {
 	}
 	h := newHarness(t)
 	site := testSite(t, commissionSite)
-	nc, err := broker.Connect(h.srv.ClientURL(), "kestrel", broker.Auth{})
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer nc.Close()
-	svc, err := New(Config{Site: site, Conn: nc, Worker: "wk"})
-	if err != nil {
-		t.Fatal(err)
-	}
-	ctx, cancel := context.WithCancel(context.Background())
-	defer cancel()
-	done := make(chan error, 1)
-	go func() { done <- svc.Run(ctx) }()
-	<-svc.Ready()
+	svc, stop := h.runService(t, site, "kestrel")
 
 	// 4 s of 100 Hz data, 0.1 s batches: windows 0-3 commission, 4-7 follow.
 	rng := rand.New(rand.NewPCG(11, 12))
@@ -185,8 +172,7 @@ func TestCommissionThenHold(t *testing.T) {
 	if n := len(readAll()); n != 14 {
 		t.Errorf("%d estimates, want 14 (one per window)", n)
 	}
-	cancel()
-	if err := <-done; err != nil {
+	if err := stop(); err != nil {
 		t.Fatal(err)
 	}
 }

@@ -121,20 +121,7 @@ func TestGoAndReturnPairBalances(t *testing.T) {
 	}
 	h := newHarness(t)
 	site := testSite(t, pairSite)
-	nc, err := broker.Connect(h.srv.ClientURL(), "tollbar", broker.Auth{})
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer nc.Close()
-	svc, err := New(Config{Site: site, Conn: nc, Worker: "wk"})
-	if err != nil {
-		t.Fatal(err)
-	}
-	ctx, cancel := context.WithCancel(context.Background())
-	defer cancel()
-	done := make(chan error, 1)
-	go func() { done <- svc.Run(ctx) }()
-	<-svc.Ready()
+	_, stop := h.runService(t, site, "tollbar")
 
 	const rate, seconds, noise = 500.0, 10, 20.0
 	rng := rand.New(rand.NewPCG(20, 26))
@@ -169,8 +156,7 @@ func TestGoAndReturnPairBalances(t *testing.T) {
 	for _, a := range site.Assets {
 		waitFor(t, 60*time.Second, a.Name+" estimates", func() bool { return len(h.estimatesOf(a.Name)) >= seconds })
 	}
-	cancel()
-	if err := <-done; err != nil {
+	if err := stop(); err != nil {
 		t.Fatal(err)
 	}
 

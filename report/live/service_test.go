@@ -80,6 +80,31 @@ type harness struct {
 	nc  *nats.Conn
 }
 
+// runService connects to the harness's broker as user, starts the service
+// for site (worker "wk") and waits until it is ready; stop cancels it and
+// returns what Run returned.
+func (h *harness) runService(t testing.TB, site *Site, user string) (svc *Service, stop func() error) {
+	t.Helper()
+	nc, err := broker.Connect(h.srv.ClientURL(), user, broker.Auth{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Cleanup(nc.Close)
+	svc, err = New(Config{Site: site, Conn: nc, Worker: "wk"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	ctx, cancel := context.WithCancel(context.Background())
+	t.Cleanup(cancel)
+	done := make(chan error, 1)
+	go func() { done <- svc.Run(ctx) }()
+	<-svc.Ready()
+	return svc, func() error {
+		cancel()
+		return <-done
+	}
+}
+
 func newHarness(t testing.TB) *harness {
 	t.Helper()
 	srv, err := broker.StartServer(broker.ServerConfig{StoreDir: t.TempDir(), MQTTPort: -1})
