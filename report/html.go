@@ -707,7 +707,7 @@ func (v *view) summarise() {
 
 // PairNetSentence says what the route's current is when conductor 1 is a
 // go-and-return pair (Route.PairNet).
-const PairNetSentence = "The conductor is a go-and-return pair (two cores side by side carrying opposite currents): the route follows the pair's centre, and its current is the pair's net current, the sum of the two cores' currents (the current that does not return through the pair), so a step in it is current leaving or joining the circuit; the cores' own currents, where the readings part them, are in the table of fits."
+const PairNetSentence = "The conductor is a go-and-return pair (two cores close together carrying opposite currents): the route follows the pair's centre, and its current is the pair's net current, the sum of the two cores' currents (the current that does not return through the pair), so a step in it is current leaving or joining the circuit; the cores' own currents, where the readings part them, are in the table of fits. Depth and cover are the centre's: where the readings do not part the cores, their spacing is not known, and a core laid above the other lies shallower by half of it."
 
 // ConductorSummary says in a sentence, as the crew report's summary does,
 // where further conductor t runs beside conductor 1, what it carries and
