@@ -51,21 +51,8 @@ func TestCalibrateCommandTwoTurnsRefused(t *testing.T) {
 func TestCalibrateCommandSpikesAndScale(t *testing.T) {
 	dir := t.TempDir()
 	spin := filepath.Join(dir, "harrow-fen-spin.csv")
-	writeSpinLog(t, spin, [3]float64{640, -215, 90}, nil)
-	data, err := os.ReadFile(spin)
-	if err != nil {
-		t.Fatal(err)
-	}
 	// A +8000 nT spike on bx at t = 700 s (data row 701).
-	lines := strings.Split(string(data), "\n")
-	f := strings.Split(lines[701], ",")
-	var bx float64
-	fmt.Sscan(f[1], &bx)
-	f[1] = fmt.Sprintf("%.3f", bx+8000)
-	lines[701] = strings.Join(f, ",")
-	if err := os.WriteFile(spin, []byte(strings.Join(lines, "\n")), 0o644); err != nil {
-		t.Fatal(err)
-	}
+	spikedSpinLog(t, spin, [3]float64{640, -215, 90})
 	code, out, errOut := runCmd("calibrate", "--spin", spin)
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, errOut)
@@ -134,5 +121,25 @@ func TestCalibrateCommandDeadAxis(t *testing.T) {
 	code, _, errOut := runCmd("calibrate", "--spin", spin)
 	if code != 1 || !strings.Contains(errOut, "bz does not change (it reads 0 nT throughout") || strings.Contains(errOut, "turned about one axis only") {
 		t.Errorf("dead bz: exit %d, stderr %q", code, errOut)
+	}
+}
+
+// spikedSpinLog writes writeSpinLog's spin with offset to path and adds a
+// spike of +8000 nT to bx of data row 701 (t = 700 s).
+func spikedSpinLog(t *testing.T, path string, offset [3]float64) {
+	t.Helper()
+	writeSpinLog(t, path, offset, nil)
+	data, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.Split(string(data), "\n")
+	f := strings.Split(lines[701], ",")
+	var bx float64
+	fmt.Sscan(f[1], &bx)
+	f[1] = fmt.Sprintf("%.3f", bx+8000)
+	lines[701] = strings.Join(f, ",")
+	if err := os.WriteFile(path, []byte(strings.Join(lines, "\n")), 0o644); err != nil {
+		t.Fatal(err)
 	}
 }

@@ -42,21 +42,8 @@ func TestCalibrateNoTimeColumn(t *testing.T) {
 	dir := t.TempDir()
 	withTime := filepath.Join(dir, "harrow-fen-spin.csv")
 	offset := [3]float64{640, -215, 90}
-	writeSpinLog(t, withTime, offset, nil)
 	// A +8000 nT spike on bx of data row 701.
-	data, err := os.ReadFile(withTime)
-	if err != nil {
-		t.Fatal(err)
-	}
-	lines := strings.Split(string(data), "\n")
-	f := strings.Split(lines[701], ",")
-	var bx float64
-	fmt.Sscan(f[1], &bx)
-	f[1] = fmt.Sprintf("%.3f", bx+8000)
-	lines[701] = strings.Join(f, ",")
-	if err := os.WriteFile(withTime, []byte(strings.Join(lines, "\n")), 0o644); err != nil {
-		t.Fatal(err)
-	}
+	spikedSpinLog(t, withTime, offset)
 	noTime := dropFirstColumn(t, withTime, filepath.Join(dir, "spin-field-only.csv"), nil)
 
 	calA, calB := filepath.Join(dir, "a.json"), filepath.Join(dir, "b.json")
