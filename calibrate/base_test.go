@@ -152,7 +152,7 @@ func TestBaseCorrectColumnsSynthetic(t *testing.T) {
 		t.Errorf("in gap %d, covered %d", rep.InGap, rep.Covered)
 	}
 	// Gaps longer than the default limit: TestBaseGap* in
-	// base_fxbase_test.go.
+	// base_checks_test.go.
 	if _, err := BaseCorrectColumns("rover", rt, rb, "base.csv", []float64{0, 10, 10, 30, 40}, bb, nil); err == nil || !strings.Contains(err.Error(), "base.csv: data row 3 (counting from 1)") {
 		t.Errorf("err = %v, want one naming base.csv data row 3", err)
 	}

@@ -118,7 +118,7 @@ func TestFitEllipsoidRefusesPoorCoverage(t *testing.T) {
 		// Turned about z only: directions within 10 degrees of the x-y plane.
 		{"one axis", func(u [3]float64) bool { return math.Abs(u[2]) < 0.17 }, "close to a plane"},
 		// (A log never upside down, the -z cap empty, determines the
-		// ellipsoid and is kept with a warning: spin_fx2spin_test.go.)
+		// ellipsoid and is kept with a warning: spin_test.go.)
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			r := spinLog(rng, 1000, 50000, identity3(), [3]float64{100, 200, -50}, 1, tc.keep)
