@@ -591,6 +591,13 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute boo
 	st.RMS = res.RMS
 	st.Signal = signalRMS(res)
 	g.Noise = res.Sigma
+	if !ac && f.MeasuredNoise > 0 && res.Sigma > 0 {
+		// Each DC fit judged against the noise of its own readings as well
+		// (route strain.go): the current's sigma per nT of noise times the
+		// square root of the values fitted, three per reading.
+		st.Noise = f.MeasuredNoise
+		st.CurrentPerMisfit = st.CurrentSigma / res.Sigma * math.Sqrt(float64(3*len(pts)))
+	}
 	if refSigma > 0 && res.Sigma > 0 {
 		// Chi-square against the yardstick noise, so that a group fitting
 		// much worse than the others stands out.

@@ -149,7 +149,12 @@
 // no level alone: steps either side of a poor bracketing station are
 // merged into one across it (acrossPoor), a poor bracketing station's
 // sigma is scaled by the square root of its reduced chi-square, and a run
-// whose levels agree does not bound its neighbours' plateaus.
+// whose levels agree does not bound its neighbours' plateaus. A station
+// whose misfit is many times the noise measured from its own readings
+// (Station.Noise), against what the route's soundest fits show, counts as
+// poor here whatever the survey's yardstick says, and the shift its misfit
+// can make, and that of the stations beside it, widens the sigmas
+// (strain.go).
 //
 // The sigmas of the size and the location are checked by Monte Carlo
 // coverage (common practice): on synthetic routes with a known step the

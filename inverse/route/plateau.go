@@ -85,19 +85,19 @@ func plateau(u []*Placed, set *Settings, ia, ib, lo, hi int) levels {
 	var idx []int
 	n := 0
 	for i := ia - 1; i >= lo && n < plateauStations+maxTransition; i-- {
-		if clean(u[i], set) {
+		if levelSound(u[i], set) {
 			idx = append(idx, i)
 			n++
 		}
 	}
 	for i := ia; i <= ib; i++ {
-		if i == ia || i == ib || clean(u[i], set) {
+		if i == ia || i == ib || levelSound(u[i], set) {
 			idx = append(idx, i)
 		}
 	}
 	n = 0
 	for i := ib + 1; i <= hi && n < plateauStations+maxTransition; i++ {
-		if clean(u[i], set) {
+		if levelSound(u[i], set) {
 			idx = append(idx, i)
 			n++
 		}
@@ -175,8 +175,9 @@ func plateau(u []*Placed, set *Settings, ia, ib, lo, hi int) levels {
 		// No sound fit of the levels (too few stations, or a step the
 		// trend can stand in for): the bracketing stations themselves.
 		a, b := u[ia], u[ib]
-		lv = levels{before: a.Current, after: b.Current, sigmaBefore: a.CurrentSigma, sigmaAfter: b.CurrentSigma,
-			step: b.Current - a.Current, sigma: math.Hypot(a.CurrentSigma, b.CurrentSigma),
+		sa, sb := misfitSigma(a, set), misfitSigma(b, set)
+		lv = levels{before: a.Current, after: b.Current, sigmaBefore: sa, sigmaAfter: sb,
+			step: b.Current - a.Current, sigma: math.Hypot(sa, sb),
 			at: (xa + xb) / 2, atSigma: (xb - xa) / 2, nBefore: 1, nAfter: 1}
 	}
 	return lv
@@ -229,12 +230,20 @@ func determined(pts []lvPoint, f lvFit) bool {
 // into the levels it sets. A fit with a reduced chi-square of 1310 at a
 // tee read 49.50 ± 0.80 A where the conductor carried 40 A and 25 A either
 // side (found in review).
+//
+// A strained station (strain.go) carries the shift its misfit can make
+// besides, added in quadrature. (The smaller shift of a station beside it
+// is shared by its neighbours and does not average away over a plateau:
+// it is added to the level's sigma instead, see stepFindings.)
 func misfitSigma(p *Placed, set *Settings) float64 {
 	s := p.CurrentSigma
-	if clean(p, set) || p.DOF <= 0 || !(p.Chi2 > 0) {
+	if !clean(p, set) && p.DOF > 0 && p.Chi2 > 0 {
+		s *= math.Sqrt(math.Max(1, p.Chi2/float64(p.DOF)))
+	}
+	if !p.strained {
 		return s
 	}
-	return s * math.Sqrt(math.Max(1, p.Chi2/float64(p.DOF)))
+	return math.Hypot(s, p.shift)
 }
 
 // nearStation returns the error a sharp step f may carry from a station

@@ -19,6 +19,15 @@ type Placed struct {
 	Index int
 	// Flipped is true when Dir was reversed to follow the route.
 	Flipped bool
+	// strained is true when the station's misfit is many times what the
+	// route's soundest fits show against their measured noise, and shift
+	// is the shift of current its misfit beyond theirs can make, A, for a
+	// strained station and one beside it; zero otherwise (strain.go).
+	strained bool
+	shift    float64
+	// misfit is RMS over Noise, and misfitRef the route's reference for
+	// it, when strained.
+	misfit, misfitRef float64
 }
 
 // Route is the result of Build.
@@ -70,6 +79,7 @@ func Build(stations []Station, set *Settings) (*Route, error) {
 	cornerChainage(r.Stations, set)
 	r.Length = r.Stations[len(r.Stations)-1].Chainage
 
+	markStrained(r.Stations, set)
 	ends := conductorEnds(r.Stations, set)
 	r.ModelScatter, r.ScatterWidening = modelScatter(outsideBends(r.Stations, set), set)
 	st, notes := steps(r.Stations, set, r.ModelScatter, r.ScatterWidening)
@@ -120,6 +130,7 @@ func check(s *Station, i int) error {
 		{"current", s.Current, false}, {"current sigma", s.CurrentSigma, true},
 		{"depth", s.Depth, false}, {"depth sigma", s.DepthSigma, true},
 		{"phase", s.Phase, false}, {"phase sigma", s.PhaseSigma, true},
+		{"noise", s.Noise, true}, {"current per misfit", s.CurrentPerMisfit, true},
 	}
 	for _, q := range vals {
 		if !finite(q.v) {

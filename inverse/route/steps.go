@@ -53,6 +53,9 @@ func steps(ps []Placed, set *Settings, tau, widen float64) (out []Finding, notes
 			// (scatter.go): say so rather than let the sigmas pass for
 			// complete.
 			for i := range out {
+				if out[i].Kind == KindPoorFit {
+					continue
+				}
 				out[i].Message += fmt.Sprintf("; only %d usable stations, too few to estimate scatter between stations beyond the fits' sigmas, so the sigma may be optimistic", n0)
 			}
 		}
@@ -77,6 +80,9 @@ func steps(ps []Placed, set *Settings, tau, widen float64) (out []Finding, notes
 			note = fmt.Sprintf(" (widened %.2g times for the few stations it is estimated from)", widen)
 		}
 		for i := range out {
+			if out[i].Kind == KindPoorFit {
+				continue
+			}
 			out[i].Message += fmt.Sprintf("; sigmas include an excess scatter between stations of %s A, beyond what the fits' own sigmas explain%s", SigmaText(tau), note)
 			out[i].Values = append(out[i].Values, Value{Name: "between-station scatter", Value: tau, Unit: "A"})
 		}
@@ -207,7 +213,7 @@ func spanTest(u []*Placed, isStep []bool, j int, set *Settings) (z, step float64
 	var pts []lvPoint
 	nb := 0
 	for i := j; i >= 0 && nb < spanStations; i-- {
-		if i == j || clean(u[i], set) {
+		if i == j || levelSound(u[i], set) {
 			pts = append(pts, lvPoint{x: u[i].Chainage, y: u[i].Current, s: u[i].CurrentSigma})
 			nb++
 		}
@@ -217,7 +223,7 @@ func spanTest(u []*Placed, isStep []bool, j int, set *Settings) (z, step float64
 	}
 	na := 0
 	for i := j + 2; i < len(u) && na < spanStations; i++ {
-		if i == j+2 || clean(u[i], set) {
+		if i == j+2 || levelSound(u[i], set) {
 			pts = append(pts, lvPoint{x: u[i].Chainage, y: u[i].Current, s: u[i].CurrentSigma})
 			na++
 		}
@@ -305,6 +311,12 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64, bs 
 			pl.sigmaBefore, pl.sigmaAfter = math.Hypot(pl.sigmaBefore, tau), math.Hypot(pl.sigmaAfter, tau)
 			pl.sigma = math.Hypot(pl.sigma, math.Sqrt2*tau)
 		}
+		// Stations beside a strained one share the model's error that
+		// strains it, and so do their neighbours on the plateau: the
+		// level carries the largest such shift (strain.go).
+		sb, sa := besideShift(uo, set, runs[r][0], lo, -1), besideShift(uo, set, runs[r][1], hi, 1)
+		pl.sigmaBefore, pl.sigmaAfter = math.Hypot(pl.sigmaBefore, sb), math.Hypot(pl.sigmaAfter, sa)
+		pl.sigma = math.Hypot(pl.sigma, math.Hypot(sb, sa))
 		return pl
 	}
 	// A run whose levels agree is no step, and must not bound its
@@ -312,6 +324,7 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64, bs 
 	// and size the others again, until every run left is significant.
 	// Kept as a bound, a jump of two stations on a smooth rise left one
 	// station to set the level beside a tee (found in review).
+	var held []Finding // changes withheld at strained stations (strain.go)
 	for set.trendWindow() > 0 {
 		worst, worstZ := -1, math.Inf(1)
 		for r := range runs {
@@ -330,10 +343,13 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64, bs 
 		if worst < 0 {
 			break
 		}
+		if f, ok := withheld(u, runs[worst], size(worst), set); ok {
+			held = append(held, f)
+		}
 		runs = append(runs[:worst:worst], runs[worst+1:]...)
 		across = append(across[:worst:worst], across[worst+1:]...)
 	}
-	var out []Finding
+	out := held
 	var notes map[string]string
 	for r, run := range runs {
 		ia, ib := run[0], run[1]
@@ -472,12 +488,19 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64, bs 
 			for _, i := range crossed {
 				names = append(names, label(u[i]))
 			}
-			f.Message = fmt.Sprintf("%s; measured across %s, whose fit is poor, from the sound stations either side (a poor fit's current does not set a level; what the model misses there, a tee or a bend, may bias the stations beside it by more than the sigma says)", msg, strings.Join(names, ", "))
+			why := " (a poor fit's current does not set a level; what the model misses there, a tee or a bend, may bias the stations beside it by more than the sigma says)"
+			if allStrained(u, crossed) {
+				why = "" // said with the shifts below
+			}
+			f.Message = fmt.Sprintf("%s; measured across %s, whose fit is poor, from the sound stations either side%s", msg, strings.Join(names, ", "), why)
 		} else if ib-ia > 1 {
 			p, q := u[big], u[big+1]
 			f.Message = fmt.Sprintf("%s; most of the change (%s A) between %s and %s", msg,
 				pm(math.Abs(d.dI[big]), d.s[big]), label(p), label(q))
 			f.Values = append(f.Values, Value{Name: "largest part", Value: d.dI[big], Sigma: d.s[big], Unit: "A"})
+		}
+		if t := strainedText(u[ia : ib+1]); t != "" {
+			f.Message += "; " + t + ", and those of the stations beside by less, which the sigma allows for"
 		}
 		f.Message += fmt.Sprintf("; levels either side %.*f A and %.*f A (%d and %d stations)",
 			dec, pl.before, dec, pl.after, pl.nBefore, pl.nAfter)
@@ -507,7 +530,7 @@ func acrossPoor(u []*Placed, runs [][2]int, set *Settings) ([][2]int, map[*Place
 	var out [][2]int
 	poor := map[*Placed]bool{}
 	for _, run := range runs {
-		if k := len(out) - 1; k >= 0 && out[k][1] == run[0] && !clean(u[run[0]], set) {
+		if k := len(out) - 1; k >= 0 && out[k][1] == run[0] && !levelSound(u[run[0]], set) {
 			poor[u[run[0]]] = true
 			out[k][1] = run[1]
 			continue
