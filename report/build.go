@@ -593,10 +593,12 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute boo
 	g.Noise = res.Sigma
 	if !ac && f.MeasuredNoise > 0 && res.Sigma > 0 {
 		// Each DC fit judged against the noise of its own readings as well
-		// (route strain.go): the current's sigma per nT of noise times the
-		// square root of the values fitted, three per reading.
+		// (route strain.go): the square root of the values fitted, three
+		// per reading, over the noise the sigmas were computed with. Both
+		// are the group's, and hold for the further conductors' stations
+		// (trackStation) too.
 		st.Noise = f.MeasuredNoise
-		st.CurrentPerMisfit = st.CurrentSigma / res.Sigma * math.Sqrt(float64(3*len(pts)))
+		st.SigmasPerMisfit = math.Sqrt(float64(3*len(pts))) / res.Sigma
 	}
 	if refSigma > 0 && res.Sigma > 0 {
 		// Chi-square against the yardstick noise, so that a group fitting

@@ -130,7 +130,7 @@ func check(s *Station, i int) error {
 		{"current", s.Current, false}, {"current sigma", s.CurrentSigma, true},
 		{"depth", s.Depth, false}, {"depth sigma", s.DepthSigma, true},
 		{"phase", s.Phase, false}, {"phase sigma", s.PhaseSigma, true},
-		{"noise", s.Noise, true}, {"current per misfit", s.CurrentPerMisfit, true},
+		{"noise", s.Noise, true}, {"sigmas per misfit", s.SigmasPerMisfit, true},
 	}
 	for _, q := range vals {
 		if !finite(q.v) {

@@ -33,15 +33,16 @@ type Station struct {
 	Signal float64
 	// Noise is the reading noise per component measured apart from the
 	// fit, nT (for DC readings, from the second differences of successive
-	// readings); zero when not measured. With CurrentPerMisfit it tells
-	// a fit the model misses from one the noise explains, however the
+	// readings); zero when not measured. With SigmasPerMisfit it tells a
+	// fit the model misses from one the noise explains, however the
 	// route's other fits do (see strain.go).
 	Noise float64
-	// CurrentPerMisfit is how far a field error of 1 nT RMS over the
-	// station's readings can move the fitted current at most, A/nT: the
-	// current's sigma per nT of reading noise times the square root of the
-	// number of values fitted (see strain.go); zero when unknown.
-	CurrentPerMisfit float64
+	// SigmasPerMisfit is, in each fitted value's own sigma, the most a
+	// field error of 1 nT RMS over the station's readings can move it:
+	// sqrt(N) / sigma for N values fitted with a reading noise sigma
+	// (Cauchy-Schwarz, see strain.go), per nT; zero when unknown. It is
+	// the group's, whichever of its lines the station follows.
+	SigmasPerMisfit float64
 	// Chi2 and DOF are the fit's chi-square and degrees of freedom; when
 	// DOF > 0 and Settings.MaxReducedChi2 > 0 a large Chi2/DOF is reported
 	// as a poor fit. Leave them zero when the noise was estimated from the

@@ -42,9 +42,9 @@ import (
 //     Taking |e| from the residuals beyond the reference,
 //     sqrt(N (RMS^2 - (ratio_ref Noise)^2)) over the N values fitted,
 //
-//     shift = CurrentPerMisfit sqrt(RMS^2 - (ratio_ref Noise)^2),
+//     shift = sigma_I SigmasPerMisfit sqrt(RMS^2 - (ratio_ref Noise)^2),
 //
-//     CurrentPerMisfit = sigma_I sqrt(N) / sigma. The part of e that the
+//     SigmasPerMisfit = sqrt(N) / sigma. The part of e that the
 //     fit absorbed leaves no residual, so this is a scale, not a bound: at
 //     the tee above it was 0.36-1.9 A where the errors were 0.33-1.6 A and
 //     the bound from the whole error field 3.0-7.1 A (TestMisfitShiftBound);
@@ -92,13 +92,13 @@ func markStrained(ps []Placed, set *Settings) {
 	ref := math.Max(1, ratios[int(math.Ceil(strainRef*float64(len(ratios))))-1])
 	u := usable(ps)
 	shift := func(p *Placed) float64 {
-		if r := misfitRatio(p); r > ref && p.CurrentPerMisfit > 0 {
-			return p.CurrentPerMisfit * math.Sqrt(p.RMS*p.RMS-ref*p.Noise*ref*p.Noise)
+		if r := misfitRatio(p); r > ref && p.SigmasPerMisfit > 0 {
+			return p.CurrentSigma * p.SigmasPerMisfit * math.Sqrt(p.RMS*p.RMS-ref*p.Noise*ref*p.Noise)
 		}
 		return 0
 	}
 	for _, p := range u {
-		if r := misfitRatio(p); r > math.Sqrt(maxChi)*ref && p.CurrentPerMisfit > 0 {
+		if r := misfitRatio(p); r > math.Sqrt(maxChi)*ref && p.SigmasPerMisfit > 0 && p.CurrentSigma > 0 {
 			p.strained, p.shift = true, shift(p)
 			p.misfit, p.misfitRef = r, ref
 		}
@@ -225,13 +225,9 @@ func withheld(u []*Placed, run [2]int, pl levels, set *Settings) (f Finding, ok 
 	if raw*math.Copysign(1, a.Current+b.Current) > 0 {
 		verb = "rises"
 	}
-	dec, dok := SigmaDecimals(pl.sigma)
-	if !dok {
-		dec = min(dec, MaxDecimals)
-	}
-	msg := fmt.Sprintf("the current %s by %s A between %s (chainage %.1f m) and %s (%.1f m), which is not reported as current leaving or joining: %s; the levels either side, %.*f A and %.*f A, differ by %s A, within %s sigma; a change of current there cannot be told from the model's error",
+	msg := fmt.Sprintf("the current %s by %s A between %s (chainage %.1f m) and %s (%.1f m), which is not reported as current leaving or joining: %s; with that counted, the levels either side differ by %s A, within %s sigma, and a change of current there cannot be told from the model's error",
 		verb, pm(math.Abs(raw), rawSigma), label(a), a.Chainage, label(b), b.Chainage, strainedText(u[run[0]:run[1]+1]),
-		dec, pl.before, dec, pl.after, pm(pl.step, pl.sigma), strconv.FormatFloat(set.stepK(), 'g', 3, 64))
+		pm(pl.step, pl.sigma), strconv.FormatFloat(set.stepK(), 'g', 3, 64))
 	return Finding{
 		Kind:     KindPoorFit,
 		Severity: SeverityInfo,
