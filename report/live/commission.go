@@ -19,6 +19,10 @@ type storedGeometry struct {
 	From       float64           `json:"from"`
 	To         float64           `json:"to"`
 	Worker     string            `json:"worker"`
+	// Uncertainty is the covariance of the geometry's fit, carried into
+	// every window's sigmas (absent from geometries stored by earlier
+	// versions, whose windows' sigmas leave it out).
+	Uncertainty *geometryUncertainty `json:"uncertainty,omitempty"`
 }
 
 // loadGeometry sets up the estimator: from the site file for model
@@ -27,6 +31,7 @@ type storedGeometry struct {
 func (w *assetWorker) loadGeometry(ctx context.Context) error {
 	a := w.asset
 	conds := a.Conductors
+	var unc *geometryUncertainty
 	if a.Model == "commission" {
 		e, err := w.svc.stores.State.Get(ctx, geometryKey(a.Name))
 		if errors.Is(err, jetstream.ErrKeyNotFound) {
@@ -39,21 +44,42 @@ func (w *assetWorker) loadGeometry(ctx context.Context) error {
 		if err := json.Unmarshal(e.Value(), &g); err != nil {
 			return fmt.Errorf("live: asset %s: stored geometry: %w", a.Name, err)
 		}
-		conds = g.Conductors
+		conds, unc = g.Conductors, g.Uncertainty
+		if unc == nil {
+			w.log.Warn("the stored geometry carries no uncertainty (an earlier version's, or not found when commissioned): the windows' sigmas leave out its error; recommission the asset to have it")
+		}
 	}
-	return w.setGeometry(conds)
+	return w.setGeometry(conds, unc)
 }
 
-func (w *assetWorker) setGeometry(conds []ConductorConfig) error {
-	est, err := w.svc.newEstimator(w.asset.Mode, conds)
-	if err != nil {
+// setGeometry holds conds for the asset's windows; unc, when not nil, is
+// their commissioning fit's covariance, carried into every window's
+// sigmas.
+func (w *assetWorker) setGeometry(conds []ConductorConfig, unc *geometryUncertainty) error {
+	if err := w.proc.hold(w.svc.newEstimator, conds); err != nil {
 		return fmt.Errorf("live: asset %s: %w", w.asset.Name, err)
 	}
-	w.proc.est = est
-	w.proc.names, w.proc.dirs = w.proc.names[:0], w.proc.dirs[:0]
+	shifts, err := geometryShifts(w.svc.newEstimator, w.asset.Mode, conds, unc)
+	if err != nil {
+		w.log.Warn("the commissioned geometry's uncertainty cannot be used: the windows' sigmas leave it out", "err", err)
+	}
+	w.proc.shifts = shifts
+	return nil
+}
+
+// hold sets the estimator for the geometry conds (built by newEst) and
+// the conductors' names and directions; it clears the geometry's
+// uncertainty (shifts).
+func (p *processor) hold(newEst NewEstimatorFunc, conds []ConductorConfig) error {
+	est, err := newEst(p.asset.Mode, conds)
+	if err != nil {
+		return err
+	}
+	p.est, p.shifts = est, nil
+	p.names, p.dirs = p.names[:0], p.dirs[:0]
 	for _, c := range conds {
-		w.proc.names = append(w.proc.names, c.Name)
-		w.proc.dirs = append(w.proc.dirs, c.currentDir())
+		p.names = append(p.names, c.Name)
+		p.dirs = append(p.dirs, c.currentDir())
 	}
 	return nil
 }
@@ -70,14 +96,73 @@ func (w *assetWorker) commission(win *window) error {
 	if w.svc.commissioner == nil {
 		return fmt.Errorf("live: asset %s: model \"commission\" but no commissioner is configured", w.asset.Name)
 	}
-	// Average each sensor's reduced reading over the held windows.
+	reds := make([]*reduced, len(w.pending))
+	for i, pw := range w.pending {
+		reds[i] = w.proc.reduce(pw)
+	}
+	sum := meanReadings(reds, len(w.asset.Sensors), w.asset.Mode == "ac")
+	conds, err := w.svc.commissioner.Commission(&sum, w.asset.Conductors)
+	var site *needsSiteError
+	if errors.As(err, &site) {
+		// More data would not help (and averaging on could take in a
+		// change of the currents): stop until the site file is mended.
+		return fmt.Errorf("live: asset %s: commissioning: %w", w.asset.Name, err)
+	}
+	if err != nil {
+		w.log.Warn("commissioning failed; trying again with more data", "err", err, "windows", len(w.pending))
+		if len(w.pending) > 20*int(w.asset.Commission.Seconds()/w.asset.Window.Seconds()+1) {
+			return fmt.Errorf("live: asset %s: commissioning: %w", w.asset.Name, err)
+		}
+		return nil
+	}
+	if len(conds) == len(w.asset.Conductors) && !sameNames(conds, w.asset.Conductors) {
+		for i := range conds { // a commissioner that does not name them
+			conds[i].Name = w.asset.Conductors[i].Name
+		}
+	}
+	// The geometry's own error, common to every window solved with it.
+	unc, uerr := geometryCovariance(&sum, conds)
+	if uerr != nil {
+		w.log.Warn("the commissioned geometry's uncertainty cannot be found: the windows' sigmas leave it out", "err", uerr)
+	}
+	g := storedGeometry{Conductors: conds, From: w.pending[0].Start, To: win.End, Worker: w.svc.id, Uncertainty: unc}
+	data, _ := json.Marshal(g)
+	ctx, cancel := context.WithTimeout(context.Background(), 10e9)
+	defer cancel()
+	if _, err := w.svc.stores.State.Put(ctx, geometryKey(w.asset.Name), data); err != nil {
+		return fmt.Errorf("live: asset %s: store geometry: %w", w.asset.Name, err)
+	}
+	w.log.Info("asset commissioned", "conductors", len(conds), "from", g.From, "to", g.To)
+	for _, c := range conds {
+		w.log.Info("commissioned conductor", "name", c.Name, "kind", c.Kind, "point", c.Point, "direction", c.Direction)
+	}
+	if far := farFromPoints(conds, w.asset.Conductors, farFromPoint); len(far) > 0 {
+		w.log.Warn("commissioned conductors lie far from their points in the site file: check the points, or recommission",
+			"conductors", strings.Join(far, ", "), "limit_m", farFromPoint)
+	}
+	if err := w.setGeometry(conds, unc); err != nil {
+		return err
+	}
+	held := w.pending
+	w.pending, w.pendDur = nil, 0
+	for i, pw := range held {
+		if err := w.publishWindow(pw, reds[i]); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// meanReadings averages each of the nsensors sensors' reduced
+// readings over the windows reds (phasors for ac, else fields), for the
+// commissioning fit.
+func meanReadings(reds []*reduced, nsensors int, ac bool) SolveInput {
 	var sum SolveInput
 	counts := map[int]int{}
 	pos := map[int][3]float64{}
 	fields := map[int][3]float64{}
 	phasors := map[int][3]complex128{}
 	variance := map[int]float64{} // sum of the windows' reading variances, nT^2
-	reds := make([]*reduced, len(w.pending))
 	// AC phasors are referred to cos(2 pi f t): when the grid is off the
 	// site's frequency their phase turns from window to window, so each
 	// window is turned to the phase of the first window's strongest
@@ -87,9 +172,7 @@ func (w *assetWorker) commission(win *window) error {
 		sensor, axis int
 		phase        complex128 // unit phasor
 	}{sensor: -1}
-	for i, pw := range w.pending {
-		r := w.proc.reduce(pw)
-		reds[i] = r
+	for _, r := range reds {
 		turn := complex(1, 0)
 		if r.in.Phasors != nil {
 			if ref.sensor < 0 {
@@ -136,7 +219,7 @@ func (w *assetWorker) commission(win *window) error {
 	// the commissioning fit weighs its readings, and tells a resolved
 	// line from an unresolved pair, by that, not by one window's noise.
 	var perWindow []float64 // each sensor's RMS window noise
-	for si := range w.asset.Sensors {
+	for si := range nsensors {
 		n := counts[si]
 		if n == 0 {
 			continue
@@ -146,7 +229,7 @@ func (w *assetWorker) commission(win *window) error {
 			sum.Sigmas = append(sum.Sigmas, math.Sqrt(v)/float64(n))
 			perWindow = append(perWindow, math.Sqrt(v/float64(n)))
 		}
-		if w.asset.Mode == "ac" {
+		if ac {
 			p := phasors[si]
 			for k := range 3 {
 				p[k] /= complex(float64(n), 0)
@@ -170,51 +253,7 @@ func (w *assetWorker) commission(win *window) error {
 	} else {
 		sum.Sigmas = nil
 	}
-	conds, err := w.svc.commissioner.Commission(&sum, w.asset.Conductors)
-	var site *needsSiteError
-	if errors.As(err, &site) {
-		// More data would not help (and averaging on could take in a
-		// change of the currents): stop until the site file is mended.
-		return fmt.Errorf("live: asset %s: commissioning: %w", w.asset.Name, err)
-	}
-	if err != nil {
-		w.log.Warn("commissioning failed; trying again with more data", "err", err, "windows", len(w.pending))
-		if len(w.pending) > 20*int(w.asset.Commission.Seconds()/w.asset.Window.Seconds()+1) {
-			return fmt.Errorf("live: asset %s: commissioning: %w", w.asset.Name, err)
-		}
-		return nil
-	}
-	if len(conds) == len(w.asset.Conductors) && !sameNames(conds, w.asset.Conductors) {
-		for i := range conds { // a commissioner that does not name them
-			conds[i].Name = w.asset.Conductors[i].Name
-		}
-	}
-	g := storedGeometry{Conductors: conds, From: w.pending[0].Start, To: win.End, Worker: w.svc.id}
-	data, _ := json.Marshal(g)
-	ctx, cancel := context.WithTimeout(context.Background(), 10e9)
-	defer cancel()
-	if _, err := w.svc.stores.State.Put(ctx, geometryKey(w.asset.Name), data); err != nil {
-		return fmt.Errorf("live: asset %s: store geometry: %w", w.asset.Name, err)
-	}
-	w.log.Info("asset commissioned", "conductors", len(conds), "from", g.From, "to", g.To)
-	for _, c := range conds {
-		w.log.Info("commissioned conductor", "name", c.Name, "kind", c.Kind, "point", c.Point, "direction", c.Direction)
-	}
-	if far := farFromPoints(conds, w.asset.Conductors, farFromPoint); len(far) > 0 {
-		w.log.Warn("commissioned conductors lie far from their points in the site file: check the points, or recommission",
-			"conductors", strings.Join(far, ", "), "limit_m", farFromPoint)
-	}
-	if err := w.setGeometry(conds); err != nil {
-		return err
-	}
-	held := w.pending
-	w.pending, w.pendDur = nil, 0
-	for i, pw := range held {
-		if err := w.publishWindow(pw, reds[i]); err != nil {
-			return err
-		}
-	}
-	return nil
+	return sum
 }
 
 // farFromPoint is the distance (m) across its line from the point the

@@ -115,6 +115,10 @@ func TestCommissionThenHold(t *testing.T) {
 		if math.Abs(math.Abs(c.Current)-pipeAmps) > 5*c.CurrentSigma+0.01*pipeAmps {
 			t.Errorf("window %d: %.4f +- %.2g A, truth %v A", i, c.Current, c.CurrentSigma, pipeAmps)
 		}
+		// The held geometry's error is in the sigma, and said apart.
+		if !(c.CurrentSigmaGeometry > 0 && c.CurrentSigmaGeometry < c.CurrentSigma) {
+			t.Errorf("window %d: geometry sigma %.2g A of %.2g A", i, c.CurrentSigmaGeometry, c.CurrentSigma)
+		}
 	}
 	// The stored geometry is the pipe: depth and direction.
 	kv, _ := h.js.KeyValue(context.Background(), broker.BucketState)
@@ -124,7 +128,7 @@ func TestCommissionThenHold(t *testing.T) {
 	}
 	var g storedGeometry
 	json.Unmarshal(entry.Value(), &g)
-	if len(g.Conductors) != 1 {
+	if len(g.Conductors) != 1 || g.Uncertainty == nil || len(g.Uncertainty.Covariance) != 4 {
 		t.Fatalf("stored geometry %+v", g)
 	}
 	c := g.Conductors[0]

@@ -206,6 +206,9 @@ func commissionLines(p *inverse.Problem, res *inverse.Result, stated []Conductor
 			name = stated[owner[k]].Name
 		}
 		out[owner[k]] = ConductorConfig{Name: name, Kind: "line", Point: l.point, Direction: l.dir}
+		if withPoints && l.pair >= 0 {
+			out[owner[k]].heldPair = l.pair + 1
+		}
 	}
 	return out, nil
 }

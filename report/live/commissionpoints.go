@@ -166,8 +166,8 @@ func commissionFromPoints(p *inverse.Problem, stated []ConductorConfig, start [3
 			g = final[gi]
 			out[k] = ConductorConfig{Point: g.c, Direction: g.d}
 		default:
-			out[j] = ConductorConfig{Point: add(g.c, scale(g.u, g.sp/2)), Direction: g.d}
-			out[k] = ConductorConfig{Point: add(g.c, scale(g.u, -g.sp/2)), Direction: g.d}
+			out[j] = ConductorConfig{Point: add(g.c, scale(g.u, g.sp/2)), Direction: g.d, heldPair: i + 1}
+			out[k] = ConductorConfig{Point: add(g.c, scale(g.u, -g.sp/2)), Direction: g.d, heldPair: i + 1}
 		}
 		gi++
 	}

@@ -59,6 +59,21 @@
 // B = Phi(geometry) c; Golub & Pereyra 1973), which returns currents with
 // one-sigma uncertainties from the covariance s^2 (J^T J)^-1.
 //
+// A commissioned geometry is itself fitted, to the mean readings of the
+// first windows, and its error is common to every window solved with it.
+// Its covariance (geometryCovariance: the inverse Fisher information of
+// the commissioning fit, currents fitted again at each step, scaled by the
+// fit's reduced chi-square when above 1) is stored with it, and each
+// window's currents are solved again with the geometry moved one sigma
+// either way along each principal axis of that covariance; the changes
+// give the geometry's share of the current and phase sigmas by the delta
+// method, added in quadrature to the window's noise and also reported
+// apart (current_sigma_geometry_a, phase_sigma_geometry_deg). Being
+// common to all windows, that share does not average away over windows,
+// and a comparison between windows should leave it out. The alarms
+// compare currents with thresholds in amperes, not with sigmas, so it
+// changes none of them. A "fixed" geometry is taken as exact.
+//
 // # Exactly one estimate per window
 //
 // An asset is processed by the worker holding its lease (a key in the

@@ -48,11 +48,25 @@ type Estimate struct {
 type ConductorEstimate struct {
 	Name string `json:"name"`
 	// Current is A, signed along the conductor's direction (RMS for AC).
-	Current      float64 `json:"current_a"`
+	Current float64 `json:"current_a"`
+	// CurrentSigma is the one-sigma error of Current: the window's noise
+	// and, for a commissioned geometry, CurrentSigmaGeometry, added in
+	// quadrature.
 	CurrentSigma float64 `json:"current_sigma_a"`
+	// CurrentSigmaGeometry is the part of CurrentSigma from the error of
+	// the commissioned geometry held in the solve (model "commission";
+	// absent for "fixed", whose geometry is taken as exact). It is common
+	// to every window solved with that geometry: it does not average away
+	// over windows, and a difference between windows (a step, a trend)
+	// should leave it out, sqrt(CurrentSigma^2 - CurrentSigmaGeometry^2)
+	// being each window's own.
+	CurrentSigmaGeometry float64 `json:"current_sigma_geometry_a,omitempty"`
 	// Phase is degrees relative to cos(2 pi f t) on the sensor clock (AC).
 	Phase      *float64 `json:"phase_deg,omitempty"`
 	PhaseSigma *float64 `json:"phase_sigma_deg,omitempty"`
+	// PhaseSigmaGeometry is the part of PhaseSigma from the commissioned
+	// geometry's error, as CurrentSigmaGeometry (AC, model "commission").
+	PhaseSigmaGeometry *float64 `json:"phase_sigma_geometry_deg,omitempty"`
 }
 
 // Alarm is published on uc.alarm.<asset>.<kind>.

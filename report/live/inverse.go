@@ -98,57 +98,13 @@ func unequal(sig []float64) bool {
 // (A' W A)^-1 with W = diag(1/sigma_i^2) and chi-square the weighted
 // residual sum of squares.
 func (e *inverseEstimator) solveWeighted(in *SolveInput) (*SolveOutput, error) {
-	n := len(in.Points)
+	A, Y, ns, err := e.weightedSystem(in, in.Sigmas)
+	if err != nil {
+		return nil, err
+	}
 	ac := in.Phasors != nil
-	switch {
-	case len(in.Sigmas) != n:
-		return nil, fmt.Errorf("%d sigmas for %d readings", len(in.Sigmas), n)
-	case ac && len(in.Phasors) != n, !ac && len(in.Fields) != n:
-		return nil, fmt.Errorf("readings and points differ in number")
-	}
-	p := &inverse.Problem{Points: in.Points, Fields: in.Fields, Phasors: in.Phasors}
-	ns := 0
-	var bases [][][][3]float64
-	for _, src := range e.sources {
-		b, err := inverse.ReadingBasis(p, src)
-		if err != nil {
-			return nil, err
-		}
-		bases = append(bases, b)
-		ns += src.NumStrengths()
-	}
-	m, q, nr := 3*n, ns+3, 1
-	if ac {
-		nr = 2
-	}
-	if m <= q {
-		return nil, fmt.Errorf("%d readings (3 axes each) are too few for %d strengths", n, q)
-	}
-	A := mat.NewDense(m, q, nil)
-	Y := mat.NewDense(m, nr, nil)
-	for i := range n {
-		s := in.Sigmas[i]
-		if !(s > 0) || math.IsInf(s, 0) {
-			return nil, fmt.Errorf("reading %d: sigma %v is not positive", i+1, s)
-		}
-		for j := range 3 {
-			row := 3*i + j
-			col := 0
-			for si, src := range e.sources {
-				for c := range src.NumStrengths() {
-					A.Set(row, col, bases[si][i][c][j]/s)
-					col++
-				}
-			}
-			A.Set(row, ns+j, 1/s)
-			if ac {
-				Y.Set(row, 0, real(in.Phasors[i][j])/s)
-				Y.Set(row, 1, imag(in.Phasors[i][j])/s)
-			} else {
-				Y.Set(row, 0, in.Fields[i][j]/s)
-			}
-		}
-	}
+	m, q := A.Dims()
+	_, nr := Y.Dims()
 	var qr mat.QR
 	qr.Factorize(A)
 	var coef mat.Dense
@@ -199,6 +155,65 @@ func (e *inverseEstimator) solveWeighted(in *SolveInput) (*SolveOutput, error) {
 		out.Background = &bg
 	}
 	return out, nil
+}
+
+// weightedSystem is the design matrix A (the conductors' fields from
+// inverse.ReadingBasis and a uniform background, one column per strength
+// and background component) and the readings Y (one column, DC; real and
+// imaginary parts, AC) of in, each row divided by its reading's sigma in
+// sig; ns is the number of strengths.
+func (e *inverseEstimator) weightedSystem(in *SolveInput, sig []float64) (A, Y *mat.Dense, ns int, err error) {
+	n := len(in.Points)
+	ac := in.Phasors != nil
+	switch {
+	case len(sig) != n:
+		return nil, nil, 0, fmt.Errorf("%d sigmas for %d readings", len(sig), n)
+	case ac && len(in.Phasors) != n, !ac && len(in.Fields) != n:
+		return nil, nil, 0, fmt.Errorf("readings and points differ in number")
+	}
+	p := &inverse.Problem{Points: in.Points, Fields: in.Fields, Phasors: in.Phasors}
+	var bases [][][][3]float64
+	for _, src := range e.sources {
+		b, err := inverse.ReadingBasis(p, src)
+		if err != nil {
+			return nil, nil, 0, err
+		}
+		bases = append(bases, b)
+		ns += src.NumStrengths()
+	}
+	m, q, nr := 3*n, ns+3, 1
+	if ac {
+		nr = 2
+	}
+	if m <= q {
+		return nil, nil, 0, fmt.Errorf("%d readings (3 axes each) are too few for %d strengths", n, q)
+	}
+	A = mat.NewDense(m, q, nil)
+	Y = mat.NewDense(m, nr, nil)
+	for i := range n {
+		s := sig[i]
+		if !(s > 0) || math.IsInf(s, 0) {
+			return nil, nil, 0, fmt.Errorf("reading %d: sigma %v is not positive", i+1, s)
+		}
+		for j := range 3 {
+			row := 3*i + j
+			col := 0
+			for si, src := range e.sources {
+				for c := range src.NumStrengths() {
+					A.Set(row, col, bases[si][i][c][j]/s)
+					col++
+				}
+			}
+			A.Set(row, ns+j, 1/s)
+			if ac {
+				Y.Set(row, 0, real(in.Phasors[i][j])/s)
+				Y.Set(row, 1, imag(in.Phasors[i][j])/s)
+			} else {
+				Y.Set(row, 0, in.Fields[i][j]/s)
+			}
+		}
+	}
+	return A, Y, ns, nil
 }
 
 // InverseCommissioner fits infinite lines with inverse.FitLines to the

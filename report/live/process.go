@@ -17,7 +17,10 @@ type processor struct {
 	names []string                 // conductor names in estimator order
 	// dirs are the directions along which the conductors' currents are
 	// signed, in estimator order (nil: all taken as one direction).
-	dirs   [][3]float64
+	dirs [][3]float64
+	// shifts are the principal axes of a commissioned geometry's
+	// covariance (geometryShifts), nil for a geometry taken as exact.
+	shifts []geometryShift
 	prev   map[string]float64 // previous window's currents (step alarm)
 	worker string
 	// revision is the asset's read revision, copied into every estimate
@@ -350,12 +353,23 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 	if e.Quality == "good" && len(r.missing) > 0 {
 		e.Quality = "partial" // a sensor short of samples or left out: see Missing
 	}
+	// The held geometry's error, in quadrature with the window's noise.
+	gCur, gPhase := p.geometrySigmas(&r.in, len(p.names))
 	byName := map[string]complex128{}
 	for i, name := range p.names {
 		c := ConductorEstimate{Name: name, Current: out.Current[i], CurrentSigma: out.CurrentSigma[i]}
+		if gCur != nil {
+			c.CurrentSigmaGeometry = gCur[i]
+			c.CurrentSigma = math.Hypot(c.CurrentSigma, gCur[i])
+		}
 		ph := 0.0
 		if out.Phase != nil {
 			v, s := out.Phase[i], out.PhaseSigma[i]
+			if gPhase != nil {
+				g := math.Min(180, gPhase[i])
+				s = math.Min(180, math.Hypot(s, g))
+				c.PhaseSigmaGeometry = &g
+			}
 			c.Phase, c.PhaseSigma = &v, &s
 			ph = v
 		}

@@ -153,6 +153,12 @@ type ConductorConfig struct {
 	// direction (model "commission", where both are optional: see
 	// InverseCommissioner).
 	pointSet, dirSet bool
+	// heldPair, on a commissioned conductor, numbers (from 1) the
+	// go-and-return pair it was fitted in at the spacing of the site
+	// file's points: the two lines' geometry is one centre line and the
+	// turn of the axis through them, not two free lines (see
+	// conductorGroups). 0: fitted as a line of its own.
+	heldPair int
 }
 
 // currentDir is the direction along which the conductor's current is

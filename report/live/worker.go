@@ -558,7 +558,7 @@ func (w *assetWorker) window(win *window) error {
 		cancel()
 		if errors.Is(err, jetstream.ErrKeyNotFound) {
 			w.log.Info("geometry forgotten; commissioning again", "from", win.Start)
-			w.proc.est, w.proc.names, w.proc.dirs = nil, nil, nil
+			w.proc.est, w.proc.names, w.proc.dirs, w.proc.shifts = nil, nil, nil, nil
 		}
 	}
 	if w.proc.est == nil {
