@@ -1129,7 +1129,7 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 	}
 	res, win, warns, hints, err := demodulateAC(o, s) // acchecks.go
 	if err != nil {
-		return err
+		return noWindowAdvice(err, o)
 	}
 	for _, w := range warns {
 		sv.warnings = append(sv.warnings, s.Source+": "+w)
@@ -1176,6 +1176,32 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 		g.travel = append(g.travel, 2*math.Sqrt(w.Travel[0]*w.Travel[0]+w.Travel[1]*w.Travel[1]+w.Travel[2]*w.Travel[2]))
 	}
 	return nil
+}
+
+// noWindowAdvice adds to a refusal for want of one whole demodulation
+// window (calibrate.NoWindowError) what the user can do: repair the time
+// column when breaks in it cut the log short, or give a window that fits
+// in the longest run.
+func noWindowAdvice(err error, o *locateOptions) error {
+	var nw *calibrate.NoWindowError
+	if !errors.As(err, &nw) {
+		return err
+	}
+	var do []string
+	b := nw.Breaks
+	if b.Repeats+b.Backwards+b.NotANumber > 0 {
+		do = append(do, "give every row its own time, increasing (remove repeated rows; \"undercurrent inspect\" counts repeated times)")
+	}
+	if b.Pauses > 0 {
+		do = append(do, "log without pauses")
+	}
+	if cycles := math.Floor(nw.LongestS*o.freq + 1e-9); o.freq > 0 && cycles >= 3 {
+		do = append(do, fmt.Sprintf("give a window that fits in the longest run, --window %.4g or shorter (%.0f cycles of %g Hz)", cycles/o.freq, cycles, o.freq))
+	}
+	if len(do) == 0 {
+		return err
+	}
+	return fmt.Errorf("%w: %s", err, strings.Join(do, ", or "))
 }
 
 // travelBiasLimit is the relative error of the modelled path average of a
