@@ -130,6 +130,11 @@ func (o *locateOptions) check(fs *pflag.FlagSet) error {
 	if o.freq < 0 || math.IsNaN(o.freq) || math.IsInf(o.freq, 0) {
 		return usageErrorf("--freq %g: want a positive frequency in Hz", o.freq)
 	}
+	if fs != nil && fs.Changed("freq") && o.freq == 0 {
+		// 0 was taken as no --freq: the DC field fitted, and --window,
+		// --mains and --coil refused for want of the flag given.
+		return usageErrorf("--freq 0: want a positive frequency in Hz (leave --freq out to fit the DC field)")
+	}
 	mains, err := parseMains(o.mainsText)
 	if err != nil {
 		return err
