@@ -1523,11 +1523,15 @@ func fixedOrigin(flag string) (ingest.Geodetic, bool) {
 // origin the results are not about.
 func checkOriginFlag(o *locateOptions, logs []string, opts []ingest.Option) (map[string]bool, error) {
 	geo := map[string]bool{}
+	flag, given := o.given["origin"]
+	fixed, isFixed := fixedOrigin(flag)
+	same := isFixed // every log local about the --origin given
 	for _, path := range logs {
 		// A fixed origin spares reading the positions through for
 		// --origin mean; only the header is looked at.
 		r, err := ingest.Open(path, append(append([]ingest.Option(nil), opts...), ingest.WithOrigin(ingest.Geodetic{}))...)
 		if err != nil {
+			same = false
 			continue
 		}
 		for _, m := range ingest.Mappings(r) {
@@ -1535,10 +1539,16 @@ func checkOriginFlag(o *locateOptions, logs []string, opts []ingest.Option) (map
 				geo[path] = true
 			}
 		}
+		var own ingest.Geodetic
+		md := r.Schema().Metadata()
+		if v, ok := md.GetValue(ingest.MetaOrigin); !ok {
+			same = false
+		} else if _, err := fmt.Sscanf(v, "%g %g %g", &own.Lat, &own.Lon, &own.H); err != nil || own != fixed {
+			same = false
+		}
 		r.Release()
 	}
-	flag, given := o.given["origin"]
-	if !given || len(geo) > 0 {
+	if !given || len(geo) > 0 || same {
 		return geo, nil
 	}
 	what := logs[0] + " has none"
