@@ -6,6 +6,7 @@ import (
 	"math"
 	"math/cmplx"
 	"sort"
+	"strings"
 
 	"gonum.org/v1/gonum/dsp/fourier"
 	"gonum.org/v1/gonum/mat"
@@ -124,8 +125,104 @@ type DemodResult struct {
 	// Nuisance lists the nuisance frequencies fitted (DemodSettings), Hz.
 	Nuisance []float64
 	// Dropped counts samples that fell in no full window (run tails).
-	Dropped  int
+	Dropped int
+	// Losses lists, per group, the windows lost to breaks in the time
+	// column (DemodLoss), in the order the groups first appear; only
+	// groups that lost a window are listed. A warning says the same.
+	Losses   []DemodLoss
 	Warnings []string
+}
+
+// DemodLoss is what breaks in the time column cost one group: the windows
+// its samples would have given without them and did not. A window never
+// spans a pause (a step over MaxStepIntervals sample intervals), a
+// repeated time or a time going backwards, so the samples between two
+// breaks closer than a window are left out.
+type DemodLoss struct {
+	Group string // "" for a log without groups
+	// Windows is the number of windows lost: those a log of the group's
+	// samples without the breaks would have given, less those fitted.
+	// Expected is the former.
+	Windows, Expected int
+	// Samples counts the group's samples in no window, run tails
+	// included.
+	Samples int
+	// Pauses counts steps over MaxStepIntervals sample intervals within
+	// the group, LongestPause is the longest, s.
+	Pauses       int
+	LongestPause float64
+	// Repeats counts times equal to the one before, Backwards times
+	// before it, NotANumber times that are NaN.
+	Repeats, Backwards, NotANumber int
+}
+
+// MaxStepIntervals is the longest time step, in sample intervals, that a
+// demodulation window spans: a single missing sample (a step of two
+// intervals) is spanned, the window fitted on its own time stamps; a
+// longer pause ends the run.
+const MaxStepIntervals = 2.5
+
+// NoWindowError is DemodulateColumns' error when no window fits in any
+// run of the log: it says how long the longest run is and what broke the
+// runs.
+type NoWindowError struct {
+	Source string  // the log's name (Demodulate), or ""
+	Window float64 // window length, s
+	N      int     // samples per window
+	// Longest is the longest run, samples, and LongestS its length, s.
+	Longest  int
+	LongestS float64
+	// Breaks sums the breaks in the time column over the groups (Group
+	// and Windows unused).
+	Breaks DemodLoss
+}
+
+func (e *NoWindowError) Error() string {
+	src := ""
+	if e.Source != "" {
+		src = e.Source + ": "
+	}
+	msg := fmt.Sprintf("calibrate: %sdemodulate: no run of the log is as long as one %g s window (%d samples)", src, e.Window, e.N)
+	if why := e.Breaks.reasons(); why != "" {
+		msg += fmt.Sprintf(": the time column %s, and a window never spans such a break; the longest run holds %d samples (%.4g s)", why, e.Longest, e.LongestS)
+	}
+	return msg
+}
+
+// reasons describes the breaks l counts ("" for none), as "repeats a time
+// 3 times and pauses 2 times (longest 0.5 s)".
+func (l *DemodLoss) reasons() string {
+	var parts []string
+	if l.Repeats > 0 {
+		parts = append(parts, fmt.Sprintf("repeats a time %s", times(l.Repeats)))
+	}
+	if l.Backwards > 0 {
+		parts = append(parts, fmt.Sprintf("goes backwards %s", times(l.Backwards)))
+	}
+	if l.Pauses > 0 {
+		parts = append(parts, fmt.Sprintf("pauses %s (two or more samples missing, the longest pause %.3g s)", times(l.Pauses), l.LongestPause))
+	}
+	if l.NotANumber > 0 {
+		parts = append(parts, fmt.Sprintf("is not a number %s", times(l.NotANumber)))
+	}
+	switch len(parts) {
+	case 0:
+		return ""
+	case 1:
+		return parts[0]
+	}
+	return strings.Join(parts[:len(parts)-1], ", ") + " and " + parts[len(parts)-1]
+}
+
+// times is "once", "twice" or "N times".
+func times(n int) string {
+	switch n {
+	case 1:
+		return "once"
+	case 2:
+		return "twice"
+	}
+	return fmt.Sprintf("%d times", n)
 }
 
 // Columns is a log as plain columns, the input of DemodulateColumns.
@@ -238,9 +335,13 @@ func (c *Columns) sampleInterval(runs []run) float64 {
 // EstimateFreq) to each axis in sliding windows and returns one Window
 // each, with warnings for too few cycles and frequency drift. Windows hold
 // a whole number of samples and never straddle a change of group, a time
-// that does not increase, or a pause (a step above 1.5 sample intervals);
-// a run's tail shorter than a window is dropped. Windows whose times sit
-// on a uniform grid share one precomputed basis; others get their own.
+// that does not increase, or a pause (a step above MaxStepIntervals sample
+// intervals; a single missing sample is spanned, the window fitted on its
+// own time stamps); a run's tail shorter than a window is dropped, and the
+// windows lost to such breaks are counted per group (DemodResult.Losses)
+// with a warning. When no window fits, the error is a *NoWindowError.
+// Windows whose times sit on a uniform grid share one precomputed basis;
+// others get their own.
 func DemodulateColumns(c *Columns, set *DemodSettings) (*DemodResult, error) {
 	var ds DemodSettings
 	if set != nil {
@@ -271,7 +372,7 @@ func DemodulateColumns(c *Columns, set *DemodSettings) (*DemodResult, error) {
 	if !(dt > 0) {
 		return nil, errors.New("calibrate: demodulate: fewer than two samples in time order")
 	}
-	runs = c.splitGaps(runs, 1.5*dt)
+	runs = c.splitGaps(runs, MaxStepIntervals*dt)
 	fs := 1 / dt
 	res := &DemodResult{}
 	if ds.Freq == 0 {
@@ -341,7 +442,8 @@ func DemodulateColumns(c *Columns, set *DemodSettings) (*DemodResult, error) {
 	}
 	d := demodulator{c: c, set: &ds, tpl: tpl, res: res}
 	res.Windows = make([]Window, 0, len(c.Time)/hop+len(runs))
-	for _, r := range runs {
+	got := make([]int, len(runs)) // windows per run
+	for i, r := range runs {
 		first := len(res.Windows)
 		end := r.lo
 		for lo := r.lo; lo+N <= r.hi; lo += hop {
@@ -351,6 +453,7 @@ func DemodulateColumns(c *Columns, set *DemodSettings) (*DemodResult, error) {
 			end = lo + N
 		}
 		res.Dropped += r.hi - end
+		got[i] = len(res.Windows) - first
 		if !ds.EstimateFreq {
 			d.phaseDrift(res.Windows[first:])
 		}
@@ -369,10 +472,160 @@ func DemodulateColumns(c *Columns, set *DemodSettings) (*DemodResult, error) {
 			"in %d of %d windows the estimated frequency (%.3f to %.3f Hz) is outside %g ± %.3f Hz, first at %s",
 			d.outBand, len(res.Windows), d.outLo, d.outHi, ds.Freq, ds.Band, d.firstOut))
 	}
+	res.Losses = c.losses(runs, got, N, hop, MaxStepIntervals*dt)
 	if len(res.Windows) == 0 {
-		return nil, fmt.Errorf("calibrate: demodulate: no run of the log is as long as one %g s window (%d samples)", ds.Window, N)
+		e := &NoWindowError{Window: ds.Window, N: N}
+		for _, r := range runs {
+			if n := r.hi - r.lo; n > e.Longest {
+				e.Longest, e.LongestS = n, c.Time[r.hi-1]-c.Time[r.lo]
+			}
+		}
+		e.Breaks = c.breaks(runs, MaxStepIntervals*dt)
+		return nil, e
+	}
+	if w := lossWarning(res.Losses, c.Group != nil); w != "" {
+		res.Warnings = append(res.Warnings, w)
 	}
 	return res, nil
+}
+
+// breakAt classifies the break before row i (the start of a run) into l:
+// a group change is none; otherwise a repeated time, a time going
+// backwards, a NaN time, or a pause (a step over maxStep). It reports
+// whether it was a group change.
+func (c *Columns) breakAt(i int, maxStep float64, l *DemodLoss) (groupChange bool) {
+	if c.Group != nil && c.Group[i] != c.Group[i-1] {
+		return true
+	}
+	a, b := c.Time[i-1], c.Time[i]
+	switch step := b - a; {
+	case math.IsNaN(a) || math.IsNaN(b):
+		l.NotANumber++
+	case step == 0:
+		l.Repeats++
+	case step < 0:
+		l.Backwards++
+	case step > maxStep:
+		l.Pauses++
+		l.LongestPause = math.Max(l.LongestPause, step)
+	}
+	return false
+}
+
+// breaks sums the breaks between runs over the whole log.
+func (c *Columns) breaks(runs []run, maxStep float64) DemodLoss {
+	var l DemodLoss
+	for _, r := range runs[min(1, len(runs)):] {
+		c.breakAt(r.lo, maxStep, &l)
+	}
+	return l
+}
+
+// losses returns, per group, the windows lost to breaks in the time
+// column (DemodLoss): runs are the log's runs in order and got the windows
+// fitted in each; a stretch of rows of one group (between group changes)
+// would have given (n-N)/hop+1 windows without breaks.
+func (c *Columns) losses(runs []run, got []int, N, hop int, maxStep float64) []DemodLoss {
+	var out []DemodLoss
+	index := map[string]int{}
+	var cur DemodLoss // the current stretch of one group
+	var n, fitted, end int
+	flush := func() {
+		if n >= N {
+			cur.Expected = (n-N)/hop + 1
+		}
+		cur.Windows = max(0, cur.Expected-fitted)
+		if cur.Windows > 0 {
+			k, ok := index[cur.Group]
+			if !ok {
+				k = len(out)
+				index[cur.Group] = k
+				out = append(out, DemodLoss{Group: cur.Group})
+			}
+			o := &out[k]
+			o.Windows += cur.Windows
+			o.Expected += cur.Expected
+			o.Samples += cur.Samples
+			o.Pauses += cur.Pauses
+			o.LongestPause = math.Max(o.LongestPause, cur.LongestPause)
+			o.Repeats += cur.Repeats
+			o.Backwards += cur.Backwards
+			o.NotANumber += cur.NotANumber
+		}
+	}
+	for i, r := range runs {
+		if i == 0 || c.breakAt(r.lo, maxStep, &cur) {
+			if i > 0 {
+				flush()
+			}
+			cur = DemodLoss{}
+			if c.Group != nil {
+				cur.Group = c.Group[r.lo]
+			}
+			n, fitted = 0, 0
+		}
+		n += r.hi - r.lo
+		fitted += got[i]
+		end = r.lo
+		if got[i] > 0 {
+			end = r.lo + (got[i]-1)*hop + N
+		}
+		cur.Samples += r.hi - end
+	}
+	if len(runs) > 0 {
+		flush()
+	}
+	return out
+}
+
+// lossWarning describes the windows lost to breaks in the time column, per
+// group when grouped; "" when none was lost.
+func lossWarning(ls []DemodLoss, grouped bool) string {
+	if len(ls) == 0 {
+		return ""
+	}
+	var all DemodLoss
+	var per []string
+	for i := range ls {
+		l := &ls[i]
+		all.Windows += l.Windows
+		all.Expected += l.Expected
+		all.Samples += l.Samples
+		all.Pauses += l.Pauses
+		all.LongestPause = math.Max(all.LongestPause, l.LongestPause)
+		all.Repeats += l.Repeats
+		all.Backwards += l.Backwards
+		all.NotANumber += l.NotANumber
+		name := l.Group
+		if name == "" {
+			name = "(no group)"
+		}
+		per = append(per, fmt.Sprintf("%s %d/%d (%s)", name, l.Windows, l.Expected, l.short()))
+	}
+	what := fmt.Sprintf("%d of %d AC windows lost to breaks in the time column (%.1f%%; %d samples in no window): the time column %s",
+		all.Windows, all.Expected, 100*float64(all.Windows)/float64(all.Expected), all.Samples, all.reasons())
+	if grouped {
+		what += fmt.Sprintf("; windows lost/expected per group: %s", strings.Join(per, ", "))
+	}
+	return what + ". A window never spans a repeated time, one going backwards or a pause longer than one missing sample, so the samples between two breaks closer than a window are left out and the fit rests on fewer windows: fix the logger's time stamps (repeated rows removed), or demodulate in shorter windows"
+}
+
+// short describes l's breaks tersely: "5 repeated, 2 pauses".
+func (l *DemodLoss) short() string {
+	var parts []string
+	add := func(n int, one, many string) {
+		switch {
+		case n == 1:
+			parts = append(parts, "1 "+one)
+		case n > 1:
+			parts = append(parts, fmt.Sprintf("%d %s", n, many))
+		}
+	}
+	add(l.Repeats, "repeated time", "repeated times")
+	add(l.Backwards, "step back", "steps back")
+	add(l.Pauses, "pause", "pauses")
+	add(l.NotANumber, "NaN time", "NaN times")
+	return strings.Join(parts, ", ")
 }
 
 // template is the basis shared by all uniformly sampled windows of N

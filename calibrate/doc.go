@@ -106,7 +106,10 @@
 // On a uniformly sampled log every window of N samples shares the same
 // basis relative to its first sample, so the normal matrix XᵀX and its
 // inverse are computed once; a window then costs a few multiply-adds per
-// sample. When the frequency is unknown, the four-parameter fit of the same
+// sample. A window off that grid (one spanning a single missing sample: a
+// longer pause, a repeated time or a step back ends a run, and the windows
+// lost are counted in DemodResult.Losses) is fitted on its own time
+// stamps. When the frequency is unknown, the four-parameter fit of the same
 // standards linearises in the frequency and iterates (Gauss-Newton) from a
 // spectral estimate: each iteration is one pass over the window's samples
 // building the small normal matrix of the well-conditioned sine basis (its

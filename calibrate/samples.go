@@ -1,6 +1,7 @@
 package calibrate
 
 import (
+	"errors"
 	"fmt"
 	"math"
 	"reflect"
@@ -237,6 +238,11 @@ func Demodulate(s *ingest.Samples, set *DemodSettings) (*DemodResult, error) {
 		c.Pos = [3][]float64{s.X, s.Y, s.Z}
 	}
 	res, err := DemodulateColumns(c, set)
+	var nw *NoWindowError
+	if errors.As(err, &nw) {
+		nw.Source = source(s)
+		return nil, nw
+	}
 	if err != nil {
 		return nil, fmt.Errorf("calibrate: %s: %s", source(s), strings.TrimPrefix(err.Error(), "calibrate: "))
 	}

@@ -6,11 +6,14 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"regexp"
+	"sort"
 	"strconv"
 	"strings"
 	"text/tabwriter"
 	"time"
 
+	"github.com/apache/arrow-go/v18/arrow/array"
 	"github.com/spf13/pflag"
 
 	"undercurrent/ingest"
@@ -31,7 +34,11 @@ the gaps, the range of every column, missing values, and a guess when the
 units look wrong (the Earth's field, about 50000 nT, reads as 0.00005 in
 tesla and 0.05 in millitesla: a median |B| of 0.00005 in columns labelled
 nT is probably in tesla). Missing values and time going backwards are
-counted here, not rejected. A log without a time column (a calibration
+counted here, not rejected: --time-order says how time should run (time
+going backwards between groups is then counted as allowed with
+per-group), and the gaps of a log not in time order are counted in time
+order; an Arrow IPC stream cut short is read too, and its warning says
+whether the other commands read it (--allow-unterminated). A log without a time column (a calibration
 log, which calibrate reads) is described with "time: none", without the
 sampling. The table gives each column's unit in the file
 and the unit of the values shown, after conversion: fields in nT,
@@ -72,6 +79,14 @@ Examples:
 			if in.Rows == 0 {
 				in.Warnings = append(in.Warnings, "no readings: the file holds no data rows")
 			}
+			// ingest.Inspect reads any order and an unterminated stream;
+			// what the flags allow is said, and an unsorted log's gaps
+			// are counted in time order.
+			order, _ := ingest.ParseTimeOrder(rf.timeOrder) // checked by options
+			if err := inspectOrder(ctx, args[0], opts, order, rf.timeOrder, in); err != nil {
+				return err
+			}
+			noteUnterminated(in, rf.allowUnterminated)
 			for i, w := range in.Warnings {
 				in.Warnings[i] = cliWording(w)
 			}
@@ -280,4 +295,220 @@ func sortStrings(s []string) {
 			s[j], s[j-1] = s[j-1], s[j]
 		}
 	}
+}
+
+// unterminatedWarning matches ingest's warnings for an Arrow IPC stream
+// read without its end-of-stream marker.
+var unterminatedWarning = regexp.MustCompile(`Arrow IPC stream (stops at byte [0-9]+, .*without its end-of-stream marker|is cut short)`)
+
+// noteUnterminated adds to the warning for an Arrow IPC stream cut short
+// (which inspect reads all the same, to describe it) whether the other
+// commands will read it: only with --allow-unterminated.
+func noteUnterminated(in *ingest.Inspection, allowed bool) {
+	for i, w := range in.Warnings {
+		if !unterminatedWarning.MatchString(w) {
+			continue
+		}
+		if allowed {
+			in.Warnings[i] = w + " (--allow-unterminated: the other commands read it too)"
+		} else {
+			in.Warnings[i] = w + "; inspect reads it regardless, but the other commands refuse it unless --allow-unterminated"
+		}
+	}
+}
+
+// backwardsWarning is ingest.Inspect's warning for time going backwards,
+// which inspectOrder replaces.
+var backwardsWarning = regexp.MustCompile(`^time: goes backwards [0-9]+ times \(an error unless allowed\)$`)
+
+// inspectOrder counts the log's time order as --time-order says (order,
+// named flag) and, when its times are not in order, its gaps in time
+// order, replacing ingest.Inspect's counts in in: ingest counts every
+// step from one row to the next, so that two swapped rows made two gaps
+// and a backward step, and a log of sensors logged one after another,
+// declared per-group, still read "an error unless allowed". It reads the
+// times (and groups) a second time, only when they do not run forward
+// throughout (or, per group, repeat).
+func inspectOrder(ctx context.Context, path string, opts []ingest.Option, order ingest.TimeOrder, flag string, in *ingest.Inspection) error {
+	ts := &in.Time
+	if in.NoTime || in.Rows == 0 || ts.Backwards == 0 && (order != ingest.TimeOrderedPerGroup || ts.Repeated == 0) {
+		return nil
+	}
+	times, groups, err := readTimes(ctx, path, opts)
+	if err != nil {
+		return err
+	}
+	if groups == nil && order == ingest.TimeOrderedPerGroup {
+		order = ingest.TimeOrdered // as ingest reads it without a group column
+	}
+	// The rows of each stretch that must run forward: the whole log, or
+	// each group's rows.
+	byGroup := map[int32][]int{}
+	var keys []int32
+	for i, t := range times {
+		if math.IsNaN(t) {
+			continue
+		}
+		g := int32(0)
+		if order == ingest.TimeOrderedPerGroup {
+			g = groups[i]
+		}
+		if _, ok := byGroup[g]; !ok {
+			keys = append(keys, g)
+		}
+		byGroup[g] = append(byGroup[g], i)
+	}
+	// Order within each stretch, in file order.
+	var back, repeated, backGroups int
+	for _, k := range keys {
+		rows := byGroup[k]
+		for j := 1; j < len(rows); j++ {
+			switch d := times[rows[j]] - times[rows[j-1]]; {
+			case d < 0:
+				back++
+			case d == 0:
+				repeated++
+			}
+		}
+	}
+	if order == ingest.TimeOrderedPerGroup {
+		backGroups = ts.Backwards - back // steps back from one group to the next
+	}
+	// Gaps in time order within each stretch (with any order, the whole
+	// log sorted).
+	var steps []float64
+	var cand []ingest.Gap
+	for _, k := range keys {
+		rows := append([]int(nil), byGroup[k]...)
+		sort.SliceStable(rows, func(a, b int) bool { return times[rows[a]] < times[rows[b]] })
+		for j := 1; j < len(rows); j++ {
+			if d := times[rows[j]] - times[rows[j-1]]; d > 0 {
+				steps = append(steps, d)
+				cand = append(cand, ingest.Gap{Row: rows[j-1], Start: times[rows[j-1]], Length: d})
+			}
+		}
+	}
+	ts.Gaps, ts.GapsAtLeast, ts.Largest = 0, false, []ingest.Gap{}
+	if len(steps) > 0 {
+		sorted := append([]float64(nil), steps...)
+		sort.Float64s(sorted)
+		ts.Interval = sorted[len(sorted)/2]
+		ts.Rate = 1 / ts.Interval
+		sort.SliceStable(cand, func(a, b int) bool { return cand[a].Length > cand[b].Length })
+		for _, g := range cand {
+			if g.Length > ingest.GapFactor*ts.Interval {
+				ts.Gaps++
+				if len(ts.Largest) < 10 {
+					ts.Largest = append(ts.Largest, g)
+				}
+			}
+		}
+	}
+	total := ts.Backwards
+	ts.Backwards, ts.Repeated = back, repeated
+	var warn string
+	switch order {
+	case ingest.TimeAnyOrder:
+		warn = fmt.Sprintf("time: goes backwards %s, as --time-order any allows; gaps are counted in time order", timesWord(total))
+	case ingest.TimeOrderedPerGroup:
+		switch {
+		case back > 0:
+			warn = fmt.Sprintf("time: goes backwards %s within a group: convert, locate, calibrate and replay refuse it with --time-order per-group (--time-order any allows it); gaps are counted in time order within each group", timesWord(back))
+		case backGroups > 0:
+			warn = fmt.Sprintf("time: goes backwards %s from one group to the next, as --time-order per-group allows; within each group it runs forward", timesWord(backGroups))
+		}
+	default:
+		warn = fmt.Sprintf("time: goes backwards %s: convert, locate and calibrate refuse the log unless --time-order says otherwise (per-group: forward within each group; any); gaps are counted in time order", timesWord(back))
+		if groups != nil && back > 0 && perGroupForward(times, groups) {
+			warn += "; within each group it runs forward, so --time-order per-group reads it"
+		}
+	}
+	kept := in.Warnings[:0]
+	for _, w := range in.Warnings {
+		if !backwardsWarning.MatchString(w) {
+			kept = append(kept, w)
+		}
+	}
+	in.Warnings = kept
+	if warn != "" {
+		in.Warnings = append(in.Warnings, warn)
+	}
+	return nil
+}
+
+// timesWord is "once", "twice" or "N times".
+func timesWord(n int) string {
+	switch n {
+	case 1:
+		return "once"
+	case 2:
+		return "twice"
+	}
+	return fmt.Sprintf("%d times", n)
+}
+
+// perGroupForward reports whether time runs forward (or repeats) within
+// every group, in file order.
+func perGroupForward(times []float64, groups []int32) bool {
+	last := map[int32]float64{}
+	for i, t := range times {
+		if math.IsNaN(t) {
+			continue
+		}
+		if p, ok := last[groups[i]]; ok && t < p {
+			return false
+		}
+		last[groups[i]] = t
+	}
+	return true
+}
+
+// readTimes reads the time column of the log at path (NaN where missing)
+// and its group column as small integers (nil when it has none), in any
+// order, with the read options opts.
+func readTimes(ctx context.Context, path string, opts []ingest.Option) ([]float64, []int32, error) {
+	opts = append(append([]ingest.Option(nil), opts...), ingest.WithAllowMissing(true), ingest.WithTimeOrder(ingest.TimeAnyOrder),
+		ingest.WithAllowUnterminatedStream(true), ingest.WithOrigin(ingest.Geodetic{}))
+	r, err := ingest.Open(path, opts...)
+	if err != nil {
+		return nil, nil, err
+	}
+	defer r.Release()
+	var times []float64
+	var groups []int32
+	ids := map[string]int32{}
+	for r.Next() {
+		if err := ctx.Err(); err != nil {
+			return nil, nil, err
+		}
+		rec := r.RecordBatch()
+		for i, f := range rec.Schema().Fields() {
+			col := rec.Column(i)
+			switch f.Name {
+			case ingest.ColTime:
+				fa, ok := col.(*array.Float64)
+				if !ok {
+					return nil, nil, fmt.Errorf("%s: time column has type %s, want float64", path, col.DataType())
+				}
+				times = append(times, fa.Float64Values()...)
+			case ingest.ColGroup:
+				for j := 0; j < col.Len(); j++ {
+					v := ""
+					if !col.IsNull(j) {
+						v = col.ValueStr(j)
+					}
+					id, ok := ids[v]
+					if !ok {
+						id = int32(len(ids))
+						ids[strings.Clone(v)] = id
+					}
+					groups = append(groups, id)
+				}
+			}
+		}
+	}
+	if err := r.Err(); err != nil {
+		return nil, nil, err
+	}
+	return times, groups, nil
 }

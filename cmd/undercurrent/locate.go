@@ -130,6 +130,11 @@ func (o *locateOptions) check(fs *pflag.FlagSet) error {
 	if o.freq < 0 || math.IsNaN(o.freq) || math.IsInf(o.freq, 0) {
 		return usageErrorf("--freq %g: want a positive frequency in Hz", o.freq)
 	}
+	if fs != nil && fs.Changed("freq") && o.freq == 0 {
+		// 0 was taken as no --freq: the DC field fitted, and --window,
+		// --mains and --coil refused for want of the flag given.
+		return usageErrorf("--freq 0: want a positive frequency in Hz (leave --freq out to fit the DC field)")
+	}
 	mains, err := parseMains(o.mainsText)
 	if err != nil {
 		return err
@@ -438,6 +443,11 @@ type survey struct {
 	// groupWarned is set when a log's group column drew the --group-by
 	// warning (then the span check is not needed).
 	groupWarned bool
+	// geodetic says which logs have latitude and longitude columns (the
+	// logs --origin places), and originFrom is the log whose origin the
+	// document's frame took.
+	geodetic   map[string]bool
+	originFrom string
 	// windowN are the AC windows' sample counts, and windowSigma their
 	// phasors' noise per axis from the windows' own sine-fit residuals
 	// (calibrate.Window.Sigma), nT.
@@ -581,6 +591,9 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 	if o.groupBy != "" && o.groupBy != ingest.ColGroup {
 		opts = append(opts, ingest.WithColumns(ingest.ColGroup+"="+o.groupBy))
 	}
+	if sv.geodetic, err = checkOriginFlag(o, logs, opts); err != nil {
+		return nil, err
+	}
 	index := map[string]*group{}
 	var baseNotes []string
 	for _, path := range logs {
@@ -613,8 +626,10 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		if o.groupBy != "" && s.Group == nil {
 			return nil, fmt.Errorf("%s has no column %q to group by (see \"undercurrent inspect %s\" for its columns)", path, o.groupBy, path)
 		}
-		if err := sameOrigin(doc, s); err != nil {
+		if w, err := sv.sameOrigin(o, s); err != nil {
 			return nil, err
+		} else if w != "" {
+			sv.warnings = append(sv.warnings, w)
 		}
 		if doc.Site == "" {
 			doc.Site = s.Meta["site"]
@@ -1129,7 +1144,7 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 	}
 	res, win, warns, hints, err := demodulateAC(o, s) // acchecks.go
 	if err != nil {
-		return err
+		return noWindowAdvice(err, o)
 	}
 	for _, w := range warns {
 		sv.warnings = append(sv.warnings, s.Source+": "+w)
@@ -1176,6 +1191,32 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 		g.travel = append(g.travel, 2*math.Sqrt(w.Travel[0]*w.Travel[0]+w.Travel[1]*w.Travel[1]+w.Travel[2]*w.Travel[2]))
 	}
 	return nil
+}
+
+// noWindowAdvice adds to a refusal for want of one whole demodulation
+// window (calibrate.NoWindowError) what the user can do: repair the time
+// column when breaks in it cut the log short, or give a window that fits
+// in the longest run.
+func noWindowAdvice(err error, o *locateOptions) error {
+	var nw *calibrate.NoWindowError
+	if !errors.As(err, &nw) {
+		return err
+	}
+	var do []string
+	b := nw.Breaks
+	if b.Repeats+b.Backwards+b.NotANumber > 0 {
+		do = append(do, "give every row its own time, increasing (remove repeated rows; \"undercurrent inspect\" counts repeated times)")
+	}
+	if b.Pauses > 0 {
+		do = append(do, "log without pauses")
+	}
+	if cycles := math.Floor(nw.LongestS*o.freq + 1e-9); o.freq > 0 && cycles >= 3 {
+		do = append(do, fmt.Sprintf("give a window that fits in the longest run, --window %.4g or shorter (%.0f cycles of %g Hz)", cycles/o.freq, cycles, o.freq))
+	}
+	if len(do) == 0 {
+		return err
+	}
+	return fmt.Errorf("%w: %s", err, strings.Join(do, ", or "))
 }
 
 // travelBiasLimit is the relative error of the modelled path average of a
@@ -1400,21 +1441,121 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 }
 
 // sameOrigin records the first geo-referenced log's origin and refuses logs
-// about another origin, whose local coordinates would not agree.
-func sameOrigin(doc *report.Document, s *ingest.Samples) error {
+// whose local positions are about another: their positions would be
+// mixed up. A log whose positions are local metres (no latitude and
+// longitude columns) is not placed by --origin: one about an origin of its
+// own other than the --origin given is refused (the results would be about
+// the log's origin while the settings name another), and one without an
+// origin, beside logs that have one, gets a warning.
+func (sv *survey) sameOrigin(o *locateOptions, s *ingest.Samples) (string, error) {
+	doc := sv.doc
+	flag, given := o.given["origin"]
+	fixed, isFixed := fixedOrigin(flag)
+	geo := sv.geodetic[s.Source]
+	if given && !geo {
+		if s.Origin == nil {
+			return fmt.Sprintf("%s: --origin %s does not apply: the log's x, y are local metres with no geographic origin (--origin places logs with latitude and longitude columns), so its positions are taken to be about the other logs' origin", s.Source, flag), nil
+		}
+		if isFixed && *s.Origin != fixed {
+			return "", fmt.Errorf("%s: the log's x, y are local metres about its own origin (%.7f, %.7f, %.2f m), not the --origin %s given: --origin places logs with latitude and longitude columns only; leave it out (the results are then about the log's origin), or give the log's own",
+				s.Source, s.Origin.Lat, s.Origin.Lon, s.Origin.H, flag)
+		}
+	}
 	if s.Origin == nil {
-		return nil
+		return "", nil
 	}
-	o := &report.Origin{Lat: s.Origin.Lat, Lon: s.Origin.Lon, H: s.Origin.H}
+	org := &report.Origin{Lat: s.Origin.Lat, Lon: s.Origin.Lon, H: s.Origin.H}
 	if doc.Frame.Origin == nil {
-		doc.Frame.Origin = o
-		return nil
+		doc.Frame.Origin = org
+		sv.originFrom = s.Source
+		return "", nil
 	}
-	if *doc.Frame.Origin != *o {
-		return fmt.Errorf("%s: local positions are about origin (%.7f, %.7f, %.2f m), the earlier logs' about (%.7f, %.7f, %.2f m): convert them to one origin first (undercurrent convert)",
-			s.Source, o.Lat, o.Lon, o.H, doc.Frame.Origin.Lat, doc.Frame.Origin.Lon, doc.Frame.Origin.H)
+	if *doc.Frame.Origin == *org {
+		return "", nil
 	}
-	return nil
+	first := doc.Frame.Origin
+	msg := fmt.Sprintf("%s: local positions are about origin (%.7f, %.7f, %.2f m), the earlier logs' about (%.7f, %.7f, %.2f m)",
+		s.Source, org.Lat, org.Lon, org.H, first.Lat, first.Lon, first.H)
+	switch {
+	case geo && !isFixed:
+		// --origin first or mean places each log about its own first or
+		// mean position.
+		how := "first reading"
+		if strings.TrimSpace(flag) == "mean" {
+			how = "mean position"
+		}
+		return "", fmt.Errorf("%s: each log's latitude and longitude are placed about its own %s unless --origin LAT,LON[,HEIGHT] gives one origin for all: add --origin %.7f,%.7f,%.2f (the first log's)",
+			msg, how, first.Lat, first.Lon, first.H)
+	case geo || sv.geodetic[sv.originFrom]:
+		// One log local about its own origin, the other geodetic: the
+		// geodetic one can be placed about the local one's origin.
+		local := first
+		if !geo {
+			local = org
+		}
+		return "", fmt.Errorf("%s: give the logs with latitude and longitude the local log's origin, --origin %.7f,%.7f,%.2f", msg, local.Lat, local.Lon, local.H)
+	}
+	return "", fmt.Errorf("%s: both are local metres, in frames that cannot be fitted together; convert the logs they came from with one --origin LAT,LON[,HEIGHT] (undercurrent convert --origin)", msg)
+}
+
+// fixedOrigin parses --origin LAT,LON[,HEIGHT] (as readFlags.options
+// checked it); ok is false for first, mean or nothing.
+func fixedOrigin(flag string) (ingest.Geodetic, bool) {
+	parts := strings.Split(strings.TrimSpace(flag), ",")
+	if len(parts) < 2 || len(parts) > 3 {
+		return ingest.Geodetic{}, false
+	}
+	var v [3]float64
+	for i, p := range parts {
+		x, err := strconv.ParseFloat(strings.TrimSpace(p), 64)
+		if err != nil {
+			return ingest.Geodetic{}, false
+		}
+		v[i] = x
+	}
+	return ingest.Geodetic{Lat: v[0], Lon: v[1], H: v[2]}, true
+}
+
+// checkOriginFlag returns which logs have latitude and longitude columns
+// (from their headers, with the read options opts; a log that cannot be
+// opened counts as not, and its read says why), and refuses --origin when
+// none has: it places only such logs, and the settings would name an
+// origin the results are not about.
+func checkOriginFlag(o *locateOptions, logs []string, opts []ingest.Option) (map[string]bool, error) {
+	geo := map[string]bool{}
+	flag, given := o.given["origin"]
+	fixed, isFixed := fixedOrigin(flag)
+	same := isFixed // every log local about the --origin given
+	for _, path := range logs {
+		// A fixed origin spares reading the positions through for
+		// --origin mean; only the header is looked at.
+		r, err := ingest.Open(path, append(append([]ingest.Option(nil), opts...), ingest.WithOrigin(ingest.Geodetic{}))...)
+		if err != nil {
+			same = false
+			continue
+		}
+		for _, m := range ingest.Mappings(r) {
+			if m.Column == "x" && strings.HasPrefix(m.Source, "WGS84 ") {
+				geo[path] = true
+			}
+		}
+		var own ingest.Geodetic
+		md := r.Schema().Metadata()
+		if v, ok := md.GetValue(ingest.MetaOrigin); !ok {
+			same = false
+		} else if _, err := fmt.Sscanf(v, "%g %g %g", &own.Lat, &own.Lon, &own.H); err != nil || own != fixed {
+			same = false
+		}
+		r.Release()
+	}
+	if !given || len(geo) > 0 || same {
+		return geo, nil
+	}
+	what := logs[0] + " has none"
+	if len(logs) > 1 {
+		what = "none of " + strings.Join(logs, ", ") + " has any"
+	}
+	return nil, usageErrorf("--origin %s places logs with latitude and longitude columns in local metres; %s (x, y are local metres already, about the origin the log names, if any, which the results keep): leave --origin out", flag, what)
 }
 
 // baseSummary says in one line what the base correction did to one log.
