@@ -24,14 +24,17 @@ type plan struct {
 	desc     [nCanon]string // how a column is derived, when more than a copy
 	geodetic bool           // positions come from lat/lon/height
 	hasPos   bool           // output has x, y, z
-	noTime   bool           // no time column (WithTimeOptional): times are NaN
-	inFrame  Frame          // frame of the input columns
-	out      []int          // canonical indices of the output columns, in order
-	schema   *arrow.Schema  // output schema, with metadata
-	meta     map[string]string
-	origin   *Geodetic
-	enu      enuFrame
-	cfg      *config
+	// absent are the position columns (cX..cZ) the input does not have
+	// although it has others: they hold 0 for every row (MetaAbsent).
+	absent  []int
+	noTime  bool          // no time column (WithTimeOptional): times are NaN
+	inFrame Frame         // frame of the input columns
+	out     []int         // canonical indices of the output columns, in order
+	schema  *arrow.Schema // output schema, with metadata
+	meta    map[string]string
+	origin  *Geodetic
+	enu     enuFrame
+	cfg     *config
 	// warnings are problems that do not stop the reading (see Warnings).
 	warnings []string
 	// orderAll: time may not go backwards from row to row; orderGroup: it
@@ -240,8 +243,11 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 	}
 	// Metadata from an earlier conversion.
 	frame := FrameENU
+	var carried []string // MetaAbsent of an earlier conversion
 	for k, v := range meta {
 		switch {
+		case k == MetaAbsent:
+			carried = strings.Fields(v)
 		case k == MetaFrame:
 			f, err := ParseFrame(v)
 			if err == nil && f != FrameNED {
@@ -384,6 +390,9 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 	// Positions.
 	anyXYZ := p.src[cX] >= 0 || p.src[cY] >= 0 || p.src[cZ] >= 0
 	hasLL := p.src[cLat] >= 0 && p.src[cLon] >= 0
+	if err := p.checkPositionNames(headerLine, anyXYZ, hasLL); err != nil {
+		return nil, err
+	}
 	switch {
 	case anyXYZ:
 		p.hasPos = true
@@ -399,6 +408,9 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 		}
 	case p.src[cLat] >= 0 || p.src[cLon] >= 0:
 		return nil, fileErr(file, nil, "found only one of latitude and longitude (columns found: %s)", strings.Join(header, ", "))
+	}
+	if p.hasPos && !p.geodetic {
+		p.notePositionsAbsent(carried)
 	}
 	for c := 0; c < nOut; c++ {
 		if p.src[c] >= 0 || (c >= cX && c <= cZ && p.hasPos) || (c == cTime && p.noTime) {
@@ -612,6 +624,13 @@ func (p *plan) buildSchema() {
 	if p.origin != nil {
 		keys = append(keys, MetaOrigin)
 		vals = append(vals, formatOrigin(*p.origin))
+	}
+	if len(p.absent) > 0 {
+		names := make([]string, len(p.absent))
+		for i, c := range p.absent {
+			names[i] = canonNames[c]
+		}
+		keys, vals = append(keys, MetaAbsent), append(vals, strings.Join(names, " "))
 	}
 	for _, k := range sortedKeys(p.meta) {
 		keys = append(keys, MetaPrefix+k)

@@ -552,3 +552,24 @@ func voltageUnit(units []string) (string, bool) {
 	}
 	return "", false
 }
+
+// checkPositionsRead refuses a survey log read without a column for x or
+// y (ingest read it as 0 for every row, Samples.Absent): the readings
+// would all lie on one line, and the fits, the route and its chainages
+// would be those of positions that are not the readings'. A log without z
+// is read with its warning (the sensors at height 0; depths are measured
+// below the sensors' mean height by default).
+func checkPositionsRead(path string, s *ingest.Samples) error {
+	var missing []string
+	for _, a := range s.Absent {
+		if a == ingest.ColX || a == ingest.ColY {
+			missing = append(missing, a)
+		}
+	}
+	if len(missing) == 0 {
+		return nil
+	}
+	m := strings.Join(missing, " and ")
+	return fmt.Errorf("%s has no column for %s: every reading would be read at %s = 0, and the fits and the route would be those of positions that are not the readings'; give the position column with --column %s=NAME (see \"undercurrent inspect %s\" for its columns), or, if every reading really lies at %s = 0, write that column into the log",
+		path, m, missing[0], missing[0], path, missing[0])
+}

@@ -583,7 +583,11 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 	}
 	index := map[string]*group{}
 	var baseNotes []string
-	for _, path := range logs {
+	if err := checkSurveyCopies(logs); err != nil {
+		return nil, err
+	}
+	var seen surveyReadings
+	for k, path := range logs {
 		if o.coil.on() {
 			// A field unit the log gives its own field columns.
 			if err := o.coil.checkLog(path, opts); err != nil {
@@ -601,6 +605,9 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 				return nil, err
 			}
 		}
+		if err := seen.check(path, s, k < len(logs)-1); err != nil {
+			return nil, err
+		}
 		if o.coil.on() {
 			o.coil.toVolts(s)
 			if w := coilSteadyWarning(path, s); w != "" {
@@ -609,6 +616,9 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		}
 		if s.X == nil || s.Y == nil || s.Z == nil {
 			return nil, fmt.Errorf("%s has no positions: locate needs x, y, z (or lat, lon, height) columns; map them with --column", path)
+		}
+		if err := checkPositionsRead(path, s); err != nil {
+			return nil, err
 		}
 		if o.groupBy != "" && s.Group == nil {
 			return nil, fmt.Errorf("%s has no column %q to group by (see \"undercurrent inspect %s\" for its columns)", path, o.groupBy, path)
