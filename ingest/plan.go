@@ -371,6 +371,9 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 		}
 		p.unit[c], p.scale[c] = u, s
 	}
+	if err := p.checkFieldScales(headerLine); err != nil {
+		return nil, err
+	}
 	if p.src[cTime] >= 0 {
 		u := strings.ToLower(p.unit[cTime])
 		p.timeUTC = u == "utc" || u == "gmt" || strings.EqualFold(strings.TrimSpace(header[p.src[cTime]]), "utc")
