@@ -58,7 +58,7 @@ func (f *readFlags) add(fs *pflag.FlagSet) {
 	fs.StringSliceVar(&f.header, "header", nil, "column names for a CSV file without a header line")
 	fs.StringVar(&f.frame, "frame", "enu", "axes of the field and position columns: enu, ned or sensor")
 	fs.StringVar(&f.origin, "origin", "first", "origin for WGS84 positions: first, mean or LAT,LON[,HEIGHT]")
-	fs.BoolVar(&f.decimalComma, "decimal-comma", false, "CSV numbers write decimals with a comma (12,5); default: detected from the first data row when the delimiter is not a comma; --decimal-comma=false refuses them")
+	fs.BoolVar(&f.decimalComma, "decimal-comma", false, "CSV numbers write decimals with a comma (12,5); default: detected, when the delimiter is not a comma, from the first data row with a number written with a decimal comma or point; --decimal-comma=false refuses them")
 	fs.BoolVar(&f.allowUnterminated, "allow-unterminated", false, "read an Arrow IPC stream file that stops without its end-of-stream marker (a copy cut short or a writer killed mid-run): the rows before the cut, with a warning")
 	fs.StringVar(&f.timeOrder, "time-order", "ordered", "how time must run through a log: ordered, per-group (within each value of the group column: sensors or traverses logged one after another) or any")
 	fs.BoolVar(&f.iagaBaseline, "iaga-baseline-frame", false, "leave IAGA-2002 variation data (H D Z, H E Z; a base-station log too) in the observatory's baseline frame instead of turning them to geographic north by the header's DECBAS")
@@ -502,6 +502,7 @@ func inspectCtx(ctx context.Context, path string, opts ...ingest.Option) (*inges
 func cliWording(s string) string {
 	s = strings.ReplaceAll(s, "(try units ", "(try --unit ")
 	s = strings.ReplaceAll(s, "(try columns ", "(try --column ")
+	s = strings.ReplaceAll(s, "the option WithDecimalComma(true), on the command line --decimal-comma", "--decimal-comma")
 	s = mappingHint.ReplaceAllString(s, "with --column $1=NAME")
 	return singleBatch.ReplaceAllString(s, "${1}1 record batch$2")
 }
