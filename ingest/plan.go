@@ -283,7 +283,7 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 	for c, name := range cfg.mapping {
 		i := find(name)
 		if i < 0 {
-			return nil, fileErr(file, nil, "mapping %s=%s: no column %q (columns found: %s)", canonNames[c], name, name, strings.Join(header, ", "))
+			return nil, fileErr(file, nil, "mapping %s=%s: no column %q (columns found: %s)", canonNames[c], name, name, columnList(header))
 		}
 		p.src[c] = i
 	}
@@ -337,7 +337,7 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 			tried = strings.Join(cfg.mappingText, ", ")
 		}
 		return nil, fileErr(file, nil, "no column for %s (columns found: %s; mapping tried: %s; give one with a column mapping such as %s=NAME, on the command line --column %s=NAME)",
-			strings.Join(missing, ", "), strings.Join(header, ", "), tried, missing[0], missing[0])
+			strings.Join(missing, ", "), columnList(header), tried, missing[0], missing[0])
 	}
 
 	// Units.
@@ -410,7 +410,7 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 			p.origin = nil // set from the first reading by the reader
 		}
 	case p.src[cLat] >= 0 || p.src[cLon] >= 0:
-		return nil, fileErr(file, nil, "found only one of latitude and longitude (columns found: %s)", strings.Join(header, ", "))
+		return nil, fileErr(file, nil, "found only one of latitude and longitude (columns found: %s)", columnList(header))
 	}
 	if p.hasPos && !p.geodetic {
 		p.notePositionsAbsent(carried)

@@ -214,3 +214,17 @@ func allPositionWords(s string) bool {
 	}
 	return len(words) > 0
 }
+
+// columnList lists column names for messages, separated by commas; a name
+// that holds a comma itself is quoted ("Field X, nT"), so that the list
+// reads unambiguously.
+func columnList(names []string) string {
+	out := make([]string, len(names))
+	for i, n := range names {
+		out[i] = n
+		if strings.Contains(n, ",") {
+			out[i] = fmt.Sprintf("%q", n)
+		}
+	}
+	return strings.Join(out, ", ")
+}

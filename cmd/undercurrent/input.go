@@ -47,7 +47,7 @@ type readFlags struct {
 const fieldUnits = "nT, pT, uT, mT, T, G or mG"
 
 func (f *readFlags) add(fs *pflag.FlagSet) {
-	fs.StringSliceVar(&f.columns, "column", nil, "map canonical columns to the file's names: `CANON=NAME`, e.g. bx=Bx_uT,time=t_s,group=traverse (repeatable)")
+	fs.StringSliceVar(&f.columns, "column", nil, "map canonical columns to the file's names: `CANON=NAME`, e.g. bx=Bx_uT,time=t_s,group=traverse (repeatable; a name holding a comma is given as it is, --column 'bx=Field X, nT': a part after a comma without = continues the name)")
 	fs.StringSliceVar(&f.units, "unit", nil, "units of columns: `CANON=UNIT`, e.g. bx=uT,time=ms (field nT/pT/uT/mT/T/G/mG, or V/mV/uV/nV for induction coils with locate --coil; length m/cm/mm/km/ft; time s/ms/us/ns, or UTC for timestamps without a zone that are UTC; repeatable)")
 	fs.StringSliceVar(&f.columnsOld, "columns", nil, "same as --column")
 	fs.StringSliceVar(&f.unitsOld, "units", nil, "same as --unit")
