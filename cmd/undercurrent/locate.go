@@ -506,6 +506,9 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 	if len(o.baseColumns) > 0 && o.base == "" {
 		return nil, usageErrorf("--base-column needs --base")
 	}
+	if err := checkSurveyCopies(logs); err != nil {
+		return nil, err
+	}
 	var cal *calibrate.Calibration
 	if o.calibration != "" {
 		var err error
@@ -583,9 +586,6 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 	}
 	index := map[string]*group{}
 	var baseNotes []string
-	if err := checkSurveyCopies(logs); err != nil {
-		return nil, err
-	}
 	var seen surveyReadings
 	for k, path := range logs {
 		if o.coil.on() {
@@ -605,7 +605,8 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 				return nil, err
 			}
 		}
-		if err := seen.check(path, s, k < len(logs)-1); err != nil {
+		// A coil's voltages are not compared as fields are.
+		if err := seen.check(path, s, k < len(logs)-1 && !o.coil.on()); err != nil {
 			return nil, err
 		}
 		if o.coil.on() {

@@ -59,7 +59,10 @@ type surveyReadings struct {
 // the test checkBaseNotSurvey applies to a base log. A log converted to
 // another format, or cut into parts that overlap, is caught where the
 // SHA-256 of checkSurveyCopies is not. Two magnetometers logging side by
-// side read fields that differ by far more. Then it keeps s's readings.
+// side read fields that differ by far more. Then, when more is set, it
+// keeps s's readings for the logs after it (more is false for the last
+// log, and for induction-coil logs: voltages read as nT agree within
+// surveyMatchNT whenever two coils log at the same times).
 func (r *surveyReadings) check(path string, s *ingest.Samples, more bool) error {
 	for _, p := range r.logs {
 		if checkBaseNotSurvey(p.Source, p, path, s) == nil && checkBaseNotSurvey(path, s, p.Source, p) == nil {
