@@ -44,6 +44,11 @@ const (
 	// MetaTime is "absent" in the schema of a log read without a time
 	// column (WithTimeOptional): its time column is NaN.
 	MetaTime = "undercurrent.time"
+	// MetaAbsent lists, separated by blanks, the position columns (x, y,
+	// z) that the log was read without and that hold 0 for every row:
+	// written so that a conversion of such a log does not pass the zeros
+	// on as positions. Samples.Absent holds them.
+	MetaAbsent = "undercurrent.absent"
 )
 
 // Internal indices of the canonical and input-only columns, in output order.
@@ -86,6 +91,9 @@ var aliases = map[string]int{
 	"temperature": cTemp,
 	"latitude":    cLat, "lng": cLon, "long": cLon, "longitude": cLon,
 	"alt": cHeight, "altitude": cHeight, "elevation": cHeight, "ellipsoidal_height": cHeight,
+	// A map grid's coordinates are east and north in metres (or the unit
+	// their suffix gives): "Easting (m)", "northing_ft".
+	"easting": cX, "northing": cY,
 }
 
 func canonIndex(name string) (int, bool) {

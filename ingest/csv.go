@@ -510,11 +510,18 @@ func parseDecimalComma(t, buf []byte) (float64, bool, []byte) {
 	return v, ok, buf
 }
 
-// firstRecordDecimalComma peeks at the first data record (without
-// consuming it) and reports whether a mapped numeric field is written with
-// a decimal comma: digits, one comma, digits.
+// firstRecordDecimalComma peeks at the data records (without consuming
+// them, as far as the reader's buffer holds) and reports whether a mapped
+// numeric field is written with a decimal comma: digits, one comma,
+// digits. The first record that decides is taken: one with such a field
+// says decimal commas, one with a decimal point in a mapped number (not a
+// time, whose seconds may have one) says decimal points. Rows of
+// delimiters alone, comment lines and records whose numbers are whole or
+// missing decide nothing, so an empty row under the header or a first row
+// of whole numbers no longer hides the commas of the rows after it.
 func (r *csvReader) firstRecordDecimalComma() bool {
 	peek, _ := r.br.Peek(64 << 10)
+	var fields [][]byte
 	for len(peek) > 0 {
 		i := bytes.IndexByte(peek, '\n')
 		ln := peek
@@ -528,19 +535,38 @@ func (r *csvReader) firstRecordDecimalComma() bool {
 		if len(t) == 0 || (len(r.comment) > 0 && bytes.HasPrefix(t, r.comment)) {
 			continue
 		}
-		fields := splitFields(ln, r.delim, r.ws, nil)
+		fields = splitFields(ln, r.delim, r.ws, fields[:0])
+		point := false
 		for _, u := range r.used {
 			if u.c == cGroup || u.src >= len(fields) {
 				continue
 			}
-			if decimalCommaText(trimField(fields[u.src])) {
+			f := trimField(fields[u.src])
+			if decimalCommaText(f) {
 				return true
 			}
+			point = point || (u.c != cTime && decimalPointText(f))
 		}
-		return false
+		if point {
+			return false
+		}
 	}
 	return false
 }
+
+// decimalPointText reports whether t is [sign] digits "." digits, possibly
+// with an exponent: a number written with a decimal point.
+func decimalPointText(t []byte) bool {
+	if bytes.IndexByte(t, '.') < 0 || bytes.IndexByte(t, ',') >= 0 {
+		return false
+	}
+	_, ok := parseNumber(t)
+	return ok
+}
+
+// decimalCommaOption names the option that reads decimal commas, for
+// messages (the command line's flag replaces it).
+const decimalCommaOption = "the option WithDecimalComma(true), on the command line --decimal-comma"
 
 // decimalCommaText reports whether t is [sign] digits "," digits.
 func decimalCommaText(t []byte) bool {
@@ -800,7 +826,7 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch, plain bool) 
 					if r.decComma {
 						what += " (the file is read with decimal commas, so a point is not a decimal point)"
 					} else if r.delim != ',' && decimalCommaText(t) {
-						what += " (a decimal comma? read the file with decimal commas: --decimal-comma, ingest.WithDecimalComma)"
+						what += " (a decimal comma? read the file with decimal commas: " + decimalCommaOption + ")"
 					}
 					if _, err := unitScale(kindOf(u.c), string(t)); err == nil && len(t) > 0 {
 						what += " (a row of units under the header? make it a comment line, starting with the comment prefix, or delete it)"

@@ -19,6 +19,13 @@
 // from its name. Readers hand out arrow.RecordBatch values through
 // Next/RecordBatch/Err and hold only a few batches in memory at a time.
 //
+// Positions: Easting and Northing are read as x and y. A log with some of
+// x, y, z has the others read as 0, with a warning, listed in
+// Samples.Absent and carried by a conversion (MetaAbsent). A column that
+// looks like a position ("x [in]", "pos_x") but is not read, its
+// position being read from nowhere else, is refused: it would be read as
+// 0 without a word.
+//
 // CSV as spreadsheets export it is read as well: a UTF-8 byte order mark,
 // CRLF or bare CR line ends, a first line "sep=;" naming the delimiter,
 // decimal commas, rows of delimiters alone (the empty rows below a table,

@@ -3,6 +3,7 @@ package ingest
 import (
 	"bufio"
 	"bytes"
+	"fmt"
 	"io"
 	"math"
 	"strconv"
@@ -110,6 +111,7 @@ func newIAGAReader(name string, rd io.Reader, cfg *config) (*iagaReader, error) 
 	meta := map[string]string{}
 	var columns []string
 	decbasLine, decbasText := 0, ""
+	reportedLine := 0
 	for {
 		raw, err := readLine(r.br)
 		if len(raw) == 0 && err != nil {
@@ -143,6 +145,9 @@ func newIAGAReader(name string, rd io.Reader, cfg *config) (*iagaReader, error) 
 				return nil, lineErr(name, r.line, "", ln, "not an IAGA-2002 header line: %s", quoteText(ln))
 			}
 			meta[MetaPrefix+iagaKey(label)] = value
+			if iagaKey(label) == "reported" {
+				reportedLine = r.line
+			}
 			continue
 		}
 		break
@@ -180,6 +185,10 @@ func newIAGAReader(name string, rd io.Reader, cfg *config) (*iagaReader, error) 
 		r.nul[i] = el[i] == "NUL"
 	}
 	meta[MetaPrefix+"elements"] = strings.Join(el[:], "")
+	mismatch, err := iagaReportedMismatch(name, reportedLine, meta[MetaPrefix+"reported"], r.line, el)
+	if err != nil {
+		return nil, err
+	}
 	// A NUL third element (no vertical data) is read as all missing.
 	third := map[string]byte{"XY": 'Z', "HD": 'Z', "HE": 'Z', "UV": 'W'}
 	set := el[0] + el[1]
@@ -227,6 +236,9 @@ func newIAGAReader(name string, rd io.Reader, cfg *config) (*iagaReader, error) 
 		return nil, err
 	}
 	r.pl = pl
+	if mismatch != "" {
+		pl.warn("%s", mismatch)
+	}
 	h1, h2, h3 := header[1], header[2], header[3]
 	switch set {
 	case "XYZ":
@@ -451,4 +463,57 @@ func (r *iagaReader) parseRow(ln []byte, rb *rawBatch, hasF bool) error {
 	rb.line = append(rb.line, r.line)
 	rb.n++
 	return nil
+}
+
+// iagaReportedMismatch compares the element set the header's "Reported"
+// field gives (reported, on line reportedLine; "" when there is none) with
+// the elements of the column line (columns, on line columnLine), which
+// are read. Elements of different kinds in one place (D or I, an angle in
+// minutes of arc, against a field component in nT) are refused: one of
+// the two lines is damaged, and reading D as a field gives nonsense
+// without a sign. Elements of the same kind that differ are returned as a
+// warning.
+func iagaReportedMismatch(name string, reportedLine int, reported string, columnLine int, columns [4]string) (string, error) {
+	rep := iagaElements(strings.ToUpper(strings.TrimSpace(reported)))
+	if len(rep) == 0 {
+		return "", nil
+	}
+	angle := func(e string) bool { return e == "D" || e == "I" }
+	differ := false
+	for i := 0; i < len(rep) && i < 4; i++ {
+		if rep[i] == columns[i] || rep[i] == "NUL" || columns[i] == "NUL" {
+			continue
+		}
+		differ = true
+		if angle(rep[i]) != angle(columns[i]) {
+			kind := func(e string) string {
+				if angle(e) {
+					return "an angle in minutes of arc"
+				}
+				return "a field component in nT"
+			}
+			return "", lineErr(name, columnLine, "", strings.Join(columns[:], ""),
+				"the IAGA-2002 column line gives the elements %s, but the header's Reported field (line %d) gives %s: element %d would be read as %s (%s) where the header says %s (%s); one of the two lines is damaged: correct it",
+				strings.Join(columns[:], ""), reportedLine, reported, i+1, columns[i], kind(columns[i]), rep[i], kind(rep[i]))
+		}
+	}
+	if !differ {
+		return "", nil
+	}
+	return fmt.Sprintf("%s:%d: the IAGA-2002 column line gives the elements %s, but the header's Reported field (line %d) gives %s: the column line's are read; if they are wrong, correct that line",
+		name, columnLine, strings.Join(columns[:], ""), reportedLine, reported), nil
+}
+
+// iagaElements splits an element set such as "HDZF" or "HENULNUL" into
+// its elements ("NUL" is one).
+func iagaElements(s string) []string {
+	var out []string
+	for len(s) > 0 {
+		if strings.HasPrefix(s, "NUL") {
+			out, s = append(out, "NUL"), s[3:]
+			continue
+		}
+		out, s = append(out, s[:1]), s[1:]
+	}
+	return out
 }

@@ -113,25 +113,37 @@ func (c *config) fail(format string, a ...any) {
 
 // WithColumns maps canonical columns to the file's column names, each pair
 // written "canonical=source" ("bx=Bx_uT"). Besides the canonical names the
-// targets lat, lon and height name WGS84 position columns.
+// targets lat, lon and height name WGS84 position columns. Pairs may also
+// be joined by commas in one string ("bx=B1,by=B2"); a part after a comma
+// that holds no "=" continues the name before it, so a name holding a
+// comma is given as it is ("bx=Field X, nT"), whether the parts come in
+// one string or, split at its commas, in several.
 func WithColumns(pairs ...string) Option {
 	return func(c *config) {
+		var parts []string
 		for _, p := range pairs {
 			for _, q := range strings.Split(p, ",") {
-				q = strings.TrimSpace(q)
-				if q == "" {
+				if !strings.Contains(q, "=") && len(parts) > 0 && strings.TrimSpace(q) != "" {
+					parts[len(parts)-1] += "," + q
 					continue
 				}
-				k, v, ok := strings.Cut(q, "=")
-				k, v = strings.ToLower(strings.TrimSpace(k)), strings.TrimSpace(v)
-				i, known := canonIndex(k)
-				if !ok || v == "" || !known {
-					c.fail("column mapping %q: want canonical=source with canonical one of %s", q, strings.Join(canonNames[:], ", "))
-					continue
-				}
-				c.mapping[i] = v
-				c.mappingText = append(c.mappingText, k+"="+v)
+				parts = append(parts, q)
 			}
+		}
+		for _, q := range parts {
+			q = strings.TrimSpace(q)
+			if q == "" {
+				continue
+			}
+			k, v, ok := strings.Cut(q, "=")
+			k, v = strings.ToLower(strings.TrimSpace(k)), strings.TrimSpace(v)
+			i, known := canonIndex(k)
+			if !ok || v == "" || !known {
+				c.fail("column mapping %q: want canonical=source with canonical one of %s", q, strings.Join(canonNames[:], ", "))
+				continue
+			}
+			c.mapping[i] = v
+			c.mappingText = append(c.mappingText, k+"="+v)
 		}
 	}
 }

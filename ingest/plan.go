@@ -24,14 +24,17 @@ type plan struct {
 	desc     [nCanon]string // how a column is derived, when more than a copy
 	geodetic bool           // positions come from lat/lon/height
 	hasPos   bool           // output has x, y, z
-	noTime   bool           // no time column (WithTimeOptional): times are NaN
-	inFrame  Frame          // frame of the input columns
-	out      []int          // canonical indices of the output columns, in order
-	schema   *arrow.Schema  // output schema, with metadata
-	meta     map[string]string
-	origin   *Geodetic
-	enu      enuFrame
-	cfg      *config
+	// absent are the position columns (cX..cZ) the input does not have
+	// although it has others: they hold 0 for every row (MetaAbsent).
+	absent  []int
+	noTime  bool          // no time column (WithTimeOptional): times are NaN
+	inFrame Frame         // frame of the input columns
+	out     []int         // canonical indices of the output columns, in order
+	schema  *arrow.Schema // output schema, with metadata
+	meta    map[string]string
+	origin  *Geodetic
+	enu     enuFrame
+	cfg     *config
 	// warnings are problems that do not stop the reading (see Warnings).
 	warnings []string
 	// orderAll: time may not go backwards from row to row; orderGroup: it
@@ -240,8 +243,11 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 	}
 	// Metadata from an earlier conversion.
 	frame := FrameENU
+	var carried []string // MetaAbsent of an earlier conversion
 	for k, v := range meta {
 		switch {
+		case k == MetaAbsent:
+			carried = strings.Fields(v)
 		case k == MetaFrame:
 			f, err := ParseFrame(v)
 			if err == nil && f != FrameNED {
@@ -277,7 +283,7 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 	for c, name := range cfg.mapping {
 		i := find(name)
 		if i < 0 {
-			return nil, fileErr(file, nil, "mapping %s=%s: no column %q (columns found: %s)", canonNames[c], name, name, strings.Join(header, ", "))
+			return nil, fileErr(file, nil, "mapping %s=%s: no column %q (columns found: %s)", canonNames[c], name, name, columnList(header))
 		}
 		p.src[c] = i
 	}
@@ -331,7 +337,7 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 			tried = strings.Join(cfg.mappingText, ", ")
 		}
 		return nil, fileErr(file, nil, "no column for %s (columns found: %s; mapping tried: %s; give one with a column mapping such as %s=NAME, on the command line --column %s=NAME)",
-			strings.Join(missing, ", "), strings.Join(header, ", "), tried, missing[0], missing[0])
+			strings.Join(missing, ", "), columnList(header), tried, missing[0], missing[0])
 	}
 
 	// Units.
@@ -365,6 +371,9 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 		}
 		p.unit[c], p.scale[c] = u, s
 	}
+	if err := p.checkFieldScales(headerLine); err != nil {
+		return nil, err
+	}
 	if p.src[cTime] >= 0 {
 		u := strings.ToLower(p.unit[cTime])
 		p.timeUTC = u == "utc" || u == "gmt" || strings.EqualFold(strings.TrimSpace(header[p.src[cTime]]), "utc")
@@ -384,6 +393,9 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 	// Positions.
 	anyXYZ := p.src[cX] >= 0 || p.src[cY] >= 0 || p.src[cZ] >= 0
 	hasLL := p.src[cLat] >= 0 && p.src[cLon] >= 0
+	if err := p.checkPositionNames(headerLine, anyXYZ, hasLL); err != nil {
+		return nil, err
+	}
 	switch {
 	case anyXYZ:
 		p.hasPos = true
@@ -398,7 +410,10 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 			p.origin = nil // set from the first reading by the reader
 		}
 	case p.src[cLat] >= 0 || p.src[cLon] >= 0:
-		return nil, fileErr(file, nil, "found only one of latitude and longitude (columns found: %s)", strings.Join(header, ", "))
+		return nil, fileErr(file, nil, "found only one of latitude and longitude (columns found: %s)", columnList(header))
+	}
+	if p.hasPos && !p.geodetic {
+		p.notePositionsAbsent(carried)
 	}
 	for c := 0; c < nOut; c++ {
 		if p.src[c] >= 0 || (c >= cX && c <= cZ && p.hasPos) || (c == cTime && p.noTime) {
@@ -612,6 +627,13 @@ func (p *plan) buildSchema() {
 	if p.origin != nil {
 		keys = append(keys, MetaOrigin)
 		vals = append(vals, formatOrigin(*p.origin))
+	}
+	if len(p.absent) > 0 {
+		names := make([]string, len(p.absent))
+		for i, c := range p.absent {
+			names[i] = canonNames[c]
+		}
+		keys, vals = append(keys, MetaAbsent), append(vals, strings.Join(names, " "))
 	}
 	for _, k := range sortedKeys(p.meta) {
 		keys = append(keys, MetaPrefix+k)

@@ -32,6 +32,9 @@ type Samples struct {
 	// NoTime: the log has no time column (read with WithTimeOptional);
 	// Time is NaN.
 	NoTime bool
+	// Absent names the position columns (x, y, z) the log has no column
+	// for although it has others: they hold 0 for every row (MetaAbsent).
+	Absent []string
 	// Warnings are the reader's warnings (see Warnings): problems with the
 	// input that did not stop the reading. Callers should show them.
 	Warnings []string
@@ -168,6 +171,8 @@ func applySchemaMeta(s *Samples, sc *arrow.Schema) {
 			}
 		case k == MetaTime:
 			s.NoTime = v == "absent"
+		case k == MetaAbsent:
+			s.Absent = strings.Fields(v)
 		case strings.HasPrefix(k, MetaPrefix):
 			s.Meta[strings.TrimPrefix(k, MetaPrefix)] = v
 		}
@@ -214,6 +219,9 @@ func (s *Samples) schema() (*arrow.Schema, []int, error) {
 	}
 	if s.Origin != nil {
 		keys, vals = append(keys, MetaOrigin), append(vals, formatOrigin(*s.Origin))
+	}
+	if len(s.Absent) > 0 {
+		keys, vals = append(keys, MetaAbsent), append(vals, strings.Join(s.Absent, " "))
 	}
 	for _, k := range sortedKeys(s.Meta) {
 		keys, vals = append(keys, MetaPrefix+k), append(vals, s.Meta[k])

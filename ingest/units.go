@@ -30,7 +30,7 @@ func unitScale(k kind, u string) (float64, error) {
 		return 0, fmt.Errorf("unknown field unit %q (want nT, pT, uT, mT, T, G or mG)", u)
 	case kindLength:
 		switch strings.ToLower(s) {
-		case "m":
+		case "m", "metre", "metres", "meter", "meters":
 			return 1, nil
 		case "mm":
 			return 1e-3, nil

@@ -47,7 +47,7 @@ type readFlags struct {
 const fieldUnits = "nT, pT, uT, mT, T, G or mG"
 
 func (f *readFlags) add(fs *pflag.FlagSet) {
-	fs.StringSliceVar(&f.columns, "column", nil, "map canonical columns to the file's names: `CANON=NAME`, e.g. bx=Bx_uT,time=t_s,group=traverse (repeatable)")
+	fs.StringSliceVar(&f.columns, "column", nil, "map canonical columns to the file's names: `CANON=NAME`, e.g. bx=Bx_uT,time=t_s,group=traverse (repeatable; a name holding a comma is given as it is, --column 'bx=Field X, nT': a part after a comma without = continues the name)")
 	fs.StringSliceVar(&f.units, "unit", nil, "units of columns: `CANON=UNIT`, e.g. bx=uT,time=ms (field nT/pT/uT/mT/T/G/mG, or V/mV/uV/nV for induction coils with locate --coil; length m/cm/mm/km/ft; time s/ms/us/ns, or UTC for timestamps without a zone that are UTC; repeatable)")
 	fs.StringSliceVar(&f.columnsOld, "columns", nil, "same as --column")
 	fs.StringSliceVar(&f.unitsOld, "units", nil, "same as --unit")
@@ -58,7 +58,7 @@ func (f *readFlags) add(fs *pflag.FlagSet) {
 	fs.StringSliceVar(&f.header, "header", nil, "column names for a CSV file without a header line")
 	fs.StringVar(&f.frame, "frame", "enu", "axes of the field and position columns: enu, ned or sensor")
 	fs.StringVar(&f.origin, "origin", "first", "origin for WGS84 positions: first, mean or LAT,LON[,HEIGHT]")
-	fs.BoolVar(&f.decimalComma, "decimal-comma", false, "CSV numbers write decimals with a comma (12,5); default: detected from the first data row when the delimiter is not a comma; --decimal-comma=false refuses them")
+	fs.BoolVar(&f.decimalComma, "decimal-comma", false, "CSV numbers write decimals with a comma (12,5); default: detected, when the delimiter is not a comma, from the first data row with a number written with a decimal comma or point; --decimal-comma=false refuses them")
 	fs.BoolVar(&f.allowUnterminated, "allow-unterminated", false, "read an Arrow IPC stream file that stops without its end-of-stream marker (a copy cut short or a writer killed mid-run): the rows before the cut, with a warning")
 	fs.StringVar(&f.timeOrder, "time-order", "ordered", "how time must run through a log: ordered, per-group (within each value of the group column: sensors or traverses logged one after another) or any")
 	fs.BoolVar(&f.iagaBaseline, "iaga-baseline-frame", false, "leave IAGA-2002 variation data (H D Z, H E Z; a base-station log too) in the observatory's baseline frame instead of turning them to geographic north by the header's DECBAS")
@@ -502,6 +502,7 @@ func inspectCtx(ctx context.Context, path string, opts ...ingest.Option) (*inges
 func cliWording(s string) string {
 	s = strings.ReplaceAll(s, "(try units ", "(try --unit ")
 	s = strings.ReplaceAll(s, "(try columns ", "(try --column ")
+	s = strings.ReplaceAll(s, "the option WithDecimalComma(true), on the command line --decimal-comma", "--decimal-comma")
 	s = mappingHint.ReplaceAllString(s, "with --column $1=NAME")
 	return singleBatch.ReplaceAllString(s, "${1}1 record batch$2")
 }
@@ -551,4 +552,25 @@ func voltageUnit(units []string) (string, bool) {
 		}
 	}
 	return "", false
+}
+
+// checkPositionsRead refuses a survey log read without a column for x or
+// y (ingest read it as 0 for every row, Samples.Absent): the readings
+// would all lie on one line, and the fits, the route and its chainages
+// would be those of positions that are not the readings'. A log without z
+// is read with its warning (the sensors at height 0; depths are measured
+// below the sensors' mean height by default).
+func checkPositionsRead(path string, s *ingest.Samples) error {
+	var missing []string
+	for _, a := range s.Absent {
+		if a == ingest.ColX || a == ingest.ColY {
+			missing = append(missing, a)
+		}
+	}
+	if len(missing) == 0 {
+		return nil
+	}
+	m := strings.Join(missing, " and ")
+	return fmt.Errorf("%s has no column for %s: every reading would be read at %s = 0, and the fits and the route would be those of positions that are not the readings'; give the position column with --column %s=NAME (see \"undercurrent inspect %s\" for its columns), or, if every reading really lies at %s = 0, write that column into the log",
+		path, m, missing[0], missing[0], path, missing[0])
 }

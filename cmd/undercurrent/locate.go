@@ -516,6 +516,9 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 	if len(o.baseColumns) > 0 && o.base == "" {
 		return nil, usageErrorf("--base-column needs --base")
 	}
+	if err := checkSurveyCopies(logs); err != nil {
+		return nil, err
+	}
 	var cal *calibrate.Calibration
 	if o.calibration != "" {
 		var err error
@@ -596,7 +599,8 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 	}
 	index := map[string]*group{}
 	var baseNotes []string
-	for _, path := range logs {
+	var seen surveyReadings
+	for k, path := range logs {
 		if o.coil.on() {
 			// A field unit the log gives its own field columns.
 			if err := o.coil.checkLog(path, opts); err != nil {
@@ -614,6 +618,10 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 				return nil, err
 			}
 		}
+		// A coil's voltages are not compared as fields are.
+		if err := seen.check(path, s, k < len(logs)-1 && !o.coil.on()); err != nil {
+			return nil, err
+		}
 		if o.coil.on() {
 			o.coil.toVolts(s)
 			if w := coilSteadyWarning(path, s); w != "" {
@@ -622,6 +630,9 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		}
 		if s.X == nil || s.Y == nil || s.Z == nil {
 			return nil, fmt.Errorf("%s has no positions: locate needs x, y, z (or lat, lon, height) columns; map them with --column", path)
+		}
+		if err := checkPositionsRead(path, s); err != nil {
+			return nil, err
 		}
 		if o.groupBy != "" && s.Group == nil {
 			return nil, fmt.Errorf("%s has no column %q to group by (see \"undercurrent inspect %s\" for its columns)", path, o.groupBy, path)

@@ -1,0 +1,230 @@
+package ingest
+
+import (
+	"fmt"
+	"strings"
+	"unicode"
+)
+
+// isPosition reports whether canonical column c carries a position: x, y,
+// z, or WGS84 latitude, longitude and height.
+func isPosition(c int) bool {
+	return (c >= cX && c <= cZ) || c == cLat || c == cLon || c == cHeight
+}
+
+// positionWords are words that, beside an axis letter, make a column name
+// a position's ("pos_x", "x position", "coord_y").
+var positionWords = map[string]bool{
+	"pos": true, "position": true, "coord": true, "coords": true, "coordinate": true,
+	"loc": true, "location": true,
+}
+
+// lengthWords are words that, after a position's name, are a unit of
+// length or part of one, known to unitScale or not ("x_US_ft",
+// "x_inches", "northing_yd").
+var lengthWords = map[string]bool{
+	"m": true, "metre": true, "metres": true, "meter": true, "meters": true,
+	"km": true, "cm": true, "mm": true, "dm": true, "ft": true, "feet": true, "foot": true,
+	"us": true, "usft": true, "survey": true, "in": true, "inch": true, "inches": true,
+	"yd": true, "yard": true, "yards": true, "mi": true, "mile": true, "miles": true,
+	"chain": true, "chains": true, "link": true, "links": true, "rod": true,
+}
+
+// positionLike reports whether a column name that no canonical column was
+// found under looks like a position column all the same: a position's
+// name with a unit the readers do not know ("x [in]", "x_yd", "lat
+// (rad)", "Easting [US ft]"), or an axis letter with a word that makes it
+// a position ("pos_x", "x_pos", "Position X (m)", "posY"). It returns the
+// canonical column it looks like. Names such as "x_accel" or "z_gyro"
+// are not positions and are left alone.
+func positionLike(h string) (int, bool) {
+	base, u := SplitUnit(h)
+	n := strings.TrimSpace(h)
+	bracketed := u != "" && (strings.HasSuffix(n, ")") || strings.HasSuffix(n, "]"))
+	if c, ok := lookupName(base); ok && isPosition(c) && u != "" {
+		words := nameWords(u)
+		all := len(words) > 0
+		for _, w := range words {
+			all = all && (lengthWords[w] || positionWords[w])
+		}
+		if bracketed || all {
+			return c, true
+		}
+	}
+	name := n
+	if bracketed {
+		name = base
+	}
+	words := nameWords(name)
+	if len(words) == 0 {
+		return 0, false
+	}
+	// "x_US_ft", "easting_us_survey_ft": a position's name, then words
+	// of a unit of length.
+	if c, ok := lookupName(words[0]); ok && isPosition(c) && len(words) > 1 {
+		all := true
+		for _, w := range words[1:] {
+			all = all && (lengthWords[w] || positionWords[w])
+		}
+		if all {
+			return c, true
+		}
+	}
+	// "pos_x", "Position X", "x_pos": an axis letter beside a position
+	// word, and nothing else but unit words.
+	axis, pos := -1, false
+	for _, w := range words {
+		switch {
+		case w == "x" || w == "y" || w == "z":
+			if axis >= 0 {
+				return 0, false
+			}
+			axis = cX + int(w[0]-'x')
+		case positionWords[w]:
+			pos = true
+		case lengthWords[w]:
+		default:
+			// "posx", "xpos": one word.
+			one := false
+			for p := range positionWords {
+				for _, a := range []string{"x", "y", "z"} {
+					if w == p+a || w == a+p {
+						one = true
+						if axis >= 0 {
+							return 0, false
+						}
+						axis, pos = cX+int(a[0]-'x'), true
+					}
+				}
+			}
+			if !one {
+				return 0, false
+			}
+		}
+	}
+	if axis >= 0 && pos {
+		return axis, true
+	}
+	return 0, false
+}
+
+// nameWords splits a column name into lower-case words at anything that
+// is not a letter or digit.
+func nameWords(s string) []string {
+	return strings.FieldsFunc(strings.ToLower(s), func(r rune) bool {
+		return !unicode.IsLetter(r) && !unicode.IsDigit(r)
+	})
+}
+
+// checkPositionNames refuses a log with a column that looks like a
+// position column (positionLike) when that position is not read from
+// anywhere else: the readers would leave it out and read the position as
+// 0 for every row, which fits lines to positions that are not the
+// readings'. A position's unit the readers do not know cannot be given,
+// so the message says to convert it; a name they do not recognise can be
+// mapped. anyXYZ and hasLL say whether local or WGS84 positions were
+// found (a log with latitude and longitude needs no x, and one with x no
+// latitude).
+func (p *plan) checkPositionNames(headerLine int, anyXYZ, hasLL bool) error {
+	for i, h := range p.header {
+		if p.uses(i) {
+			continue
+		}
+		c, ok := positionLike(h)
+		if !ok || p.src[c] >= 0 {
+			continue
+		}
+		if _, mapped := p.cfg.mapping[c]; mapped {
+			continue
+		}
+		if c >= cX && c <= cZ && hasLL && !anyXYZ {
+			continue // positions from latitude and longitude
+		}
+		if (c == cLat || c == cLon || c == cHeight) && anyXYZ {
+			continue // local positions; WGS84 columns are not read
+		}
+		what := canonNames[c]
+		switch c {
+		case cLat:
+			what = "the latitude"
+		case cLon:
+			what = "the longitude"
+		case cHeight:
+			what = "the height"
+		}
+		col := fmt.Sprintf("%d (%q)", i+1, h)
+		base, u := SplitUnit(h)
+		if lc, ok := lookupName(base); ok && lc == c && u != "" && !allPositionWords(u) {
+			if _, err := unitScale(kindOf(c), u); err != nil {
+				want := "m, cm, mm, km or ft"
+				if kindOf(c) == kindDegrees {
+					want = "degrees"
+				}
+				return &Error{File: p.file, Line: headerLine, Batch: -1, Column: col,
+					Msg: fmt.Sprintf("looks like %s (a position) in a unit this reader does not know, %q (it reads positions in %s): left out, the position would be read as 0 for every row; convert the column to one of those units; if it is not a position, rename it (a column that does hold %s is given with a column mapping such as %s=NAME, on the command line --column %s=NAME)", what, u, want, canonNames[c], canonNames[c], canonNames[c])}
+			}
+		}
+		return &Error{File: p.file, Line: headerLine, Batch: -1, Column: col,
+			Msg: fmt.Sprintf("looks like %s (a position), but its name is not one this reader recognises: left out, the position would be read as 0 for every row; read it as %s with a mapping (try columns %s=%s), adding its unit if it is not metres (try units %s=ft), or rename it if it is not a position",
+				what, canonNames[c], canonNames[c], h, canonNames[c])}
+	}
+	return nil
+}
+
+// notePositionsAbsent records the position columns a log with local
+// positions does not have (they are read as 0) and warns about them. A
+// column under its canonical name that an earlier conversion wrote as 0
+// for want of it (carried, from MetaAbsent) is absent too.
+func (p *plan) notePositionsAbsent(carried []string) {
+	var unread []string
+	for i, h := range p.header {
+		if !p.uses(i) {
+			unread = append(unread, h)
+		}
+	}
+	others := "none"
+	if len(unread) > 0 {
+		others = strings.Join(unread, ", ")
+	}
+	for c := cX; c <= cZ; c++ {
+		if p.src[c] < 0 {
+			p.absent = append(p.absent, c)
+			p.warn("%s: no column for %s: %s is read as 0 for every row (columns not read: %s); if one of them is %s, give it with a column mapping such as %s=NAME, on the command line --column %s=NAME",
+				p.file, canonNames[c], canonNames[c], others, canonNames[c], canonNames[c], canonNames[c])
+			continue
+		}
+		for _, a := range carried {
+			if a == canonNames[c] && strings.TrimSpace(p.header[p.src[c]]) == a {
+				p.absent = append(p.absent, c)
+				p.warn("%s: column %s holds no positions: the log this file was converted from had no column for %s, and it was written as 0 (metadata %s)",
+					p.file, a, a, MetaAbsent)
+			}
+		}
+	}
+}
+
+// allPositionWords reports whether s is made of position words only
+// ("pos" in "x_pos"), not a unit.
+func allPositionWords(s string) bool {
+	words := nameWords(s)
+	for _, w := range words {
+		if !positionWords[w] {
+			return false
+		}
+	}
+	return len(words) > 0
+}
+
+// columnList lists column names for messages, separated by commas; a name
+// that holds a comma itself is quoted ("Field X, nT"), so that the list
+// reads unambiguously.
+func columnList(names []string) string {
+	out := make([]string, len(names))
+	for i, n := range names {
+		out[i] = n
+		if strings.Contains(n, ",") {
+			out[i] = fmt.Sprintf("%q", n)
+		}
+	}
+	return strings.Join(out, ", ")
+}
