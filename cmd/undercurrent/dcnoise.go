@@ -25,7 +25,8 @@ import (
 // Noise that is not independent from reading to reading (the slow wander
 // of a hand-held sensor's tilt) is not seen by the differences; the shared
 // misfit warning it feeds (report sharedMisfit) therefore also requires
-// the misfit to be over 1% of the signal.
+// a DC misfit to be over 10% of the signal (report dcMisfitShare; 1% for
+// AC, whose windows measure their own noise).
 
 // minDiffReadings is the fewest readings of a group whose second
 // differences are taken as a noise measure: the median of fewer than 30
