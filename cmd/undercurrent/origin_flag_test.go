@@ -136,6 +136,10 @@ func TestLocateOriginFlag(t *testing.T) {
 		t.Errorf("%d groups, frame origin %+v, settings origin %q; want 21 groups about the origin given", len(doc.Groups), doc.Frame.Origin, doc.Settings["origin"])
 	}
 
+	// The local logs beside ll-a.csv hold only the traverses it does not
+	// (T11-T21): the same readings twice are refused as a copy.
+	local, bare = laterTraverses(t, local), laterTraverses(t, bare)
+
 	// A latitude/longitude log beside the local one about another origin:
 	// refused, naming the log and its own origin.
 	code, _, errOut = cli(t, "locate", "--group-by", "group", "--origin", "54.4,-2.0", a, local)
@@ -154,6 +158,29 @@ func TestLocateOriginFlag(t *testing.T) {
 	if !anyHas(warned.Warnings, bare+": --origin 54.3125,-2.0883,312 does not apply") {
 		t.Errorf("warnings %q, want one saying --origin does not apply to %s", warned.Warnings, bare)
 	}
+}
+
+// laterTraverses writes a copy of the local log path holding its comment
+// and header lines and the readings of traverses after T10, and returns
+// its path.
+func laterTraverses(t *testing.T, path string) string {
+	t.Helper()
+	raw, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var keep []string
+	for _, l := range strings.SplitAfter(string(raw), "\n") {
+		c := strings.Split(strings.TrimSpace(l), ",")
+		if strings.HasPrefix(l, "#") || c[0] == "time" || len(c) > 7 && c[7] > "T10" {
+			keep = append(keep, l)
+		}
+	}
+	out := strings.TrimSuffix(path, ".csv") + "-t11.csv"
+	if err := os.WriteFile(out, []byte(strings.Join(keep, "")), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return out
 }
 
 func parseOrigin(t *testing.T, s string) (lat, lon, h float64) {
