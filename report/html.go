@@ -965,7 +965,7 @@ func (v *view) plots() error {
 	if err != nil {
 		return fmt.Errorf("report: plan view: %w", err)
 	}
-	if v.Plan, err = svg(p, 16*vg.Centimeter, 16*vg.Centimeter, "plan view of readings, fitted route and findings"); err != nil {
+	if v.Plan, err = svg(p, planSide, planSide, "plan view of readings, fitted route and findings"); err != nil {
 		return err
 	}
 	if d.Route != nil && len(d.Route.Stations) > 1 {
