@@ -93,9 +93,22 @@ func newPlot(title, xlabel, ylabel string) *plot.Plot {
 // ticks: on a range of 1.63 to 1.88 it puts "1.7" on the tick at 1.65.
 type exactTicks struct{}
 
-// Ticks implements plot.Ticker.
+// Ticks implements plot.Ticker. Where plot.DefaultTicks labels fewer
+// than minLabelled ticks (it labelled a depth axis of 0 to 3.7 m only "0"
+// and "3"), the ticks are denseTicks' instead.
 func (exactTicks) Ticks(min, max float64) []plot.Tick {
 	ticks := plot.DefaultTicks{}.Ticks(min, max)
+	n := 0
+	for _, t := range ticks {
+		if t.Label != "" {
+			n++
+		}
+	}
+	if n < minLabelled {
+		if dense := denseTicks(min, max, denseLabelled); dense != nil {
+			ticks = dense
+		}
+	}
 	var vals []float64
 	for _, t := range ticks {
 		if t.Label != "" {
@@ -111,6 +124,53 @@ func (exactTicks) Ticks(min, max float64) []plot.Tick {
 		}
 	}
 	return ticks
+}
+
+// minLabelled is the fewest labelled ticks an axis keeps from
+// plot.DefaultTicks, and denseLabelled the fewest denseTicks gives in
+// their place: enough to read a value off the axis to about a fifth of
+// their spacing with the unlabelled ticks between.
+const (
+	minLabelled   = 5
+	denseLabelled = 5
+)
+
+// denseTicks places labelled ticks at the largest step of 1, 2 or 5 times
+// a power of ten that gives at least want of them between min and max,
+// with unlabelled ticks between at a fifth of the step (a quarter for a
+// step of 2); nil when the range is empty or not finite. Labels are left
+// for tickLabels to write.
+func denseTicks(min, max float64, want int) []plot.Tick {
+	span := max - min
+	if !(span > 0) || math.IsInf(span, 0) || math.IsNaN(span) {
+		return nil
+	}
+	top := math.Floor(math.Log10(span))
+	for e := top; e >= top-4; e-- {
+		for _, m := range []float64{5, 2, 1} {
+			step := m * math.Pow(10, e)
+			first, last := math.Ceil(min/step), math.Floor(max/step)
+			if last-first+1 < float64(want) {
+				continue
+			}
+			sub := 5.0
+			if m == 2 {
+				sub = 4
+			}
+			minor := step / sub
+			var ticks []plot.Tick
+			for i := math.Ceil(min / minor); i <= math.Floor(max/minor); i++ {
+				t := plot.Tick{Value: i * minor}
+				if math.Mod(i, sub) == 0 {
+					t.Value = i / sub * step
+					t.Label = "x" // written by tickLabels
+				}
+				ticks = append(ticks, t)
+			}
+			return ticks
+		}
+	}
+	return nil
 }
 
 // tickLabelTol is how far, as a fraction of the spacing of the labelled
