@@ -1,6 +1,7 @@
 package report
 
 import (
+	"bytes"
 	"encoding/csv"
 	"fmt"
 	"io"
@@ -67,6 +68,12 @@ var csvCol = func() map[string]int {
 // empty for a row that is no station of a conductor's route (a
 // magnetised object, a line no track follows, a survey without a route).
 //
+// When any of its text is not ASCII (a group named "Süd-01", a problem
+// with "±" in it), the file starts with a UTF-8 byte order mark (EF BB BF),
+// as findings.csv always does, so that spreadsheets that otherwise guess a
+// legacy code page show the text as written; a file of ASCII alone has
+// none, and reads the same either way. Lines end in LF, as findings.csv's.
+//
 // Sigmas have six significant digits, so that none is rounded to zero;
 // each value carries two decimals past its sigma's leading digit (and at
 // least the millimetre, 0.01 degree or 1e-4 A), positions the
@@ -79,7 +86,10 @@ func WriteCSV(w io.Writer, d *Document) error {
 	if err := d.Validate(); err != nil {
 		return err
 	}
-	cw := csv.NewWriter(w)
+	// Written whole to a buffer first: the byte order mark goes in front
+	// only when the text is not plain ASCII.
+	var buf bytes.Buffer
+	cw := csv.NewWriter(&buf)
 	if err := cw.Write(csvHeader); err != nil {
 		return fmt.Errorf("report: writing CSV: %w", err)
 	}
@@ -203,7 +213,25 @@ func WriteCSV(w io.Writer, d *Document) error {
 	if err := cw.Error(); err != nil {
 		return fmt.Errorf("report: writing CSV: %w", err)
 	}
+	if !isASCII(buf.Bytes()) {
+		if _, err := io.WriteString(w, utf8BOM); err != nil {
+			return fmt.Errorf("report: writing CSV: %w", err)
+		}
+	}
+	if _, err := buf.WriteTo(w); err != nil {
+		return fmt.Errorf("report: writing CSV: %w", err)
+	}
 	return nil
+}
+
+// isASCII reports whether b holds 7-bit ASCII only.
+func isASCII(b []byte) bool {
+	for _, c := range b {
+		if c >= 0x80 {
+			return false
+		}
+	}
+	return true
 }
 
 // sourceConductor is the number of the conductor along the route that
