@@ -9,6 +9,7 @@ import (
 	"strconv"
 	"strings"
 
+	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/vg"
 
 	"undercurrent/inverse/route"
@@ -961,12 +962,14 @@ func median(x []float64) float64 {
 func (v *view) plots() error {
 	d := v.D
 	var err error
-	p, err := planPlot(d)
-	if err != nil {
-		return fmt.Errorf("report: plan view: %w", err)
+	plan := func(small bool) (*plot.Plot, error) {
+		if small {
+			return planPlot(d, smallSide)
+		}
+		return planPlot(d, planSide)
 	}
-	if v.Plan, err = svg(p, planSide, planSide, "plan view of readings, fitted route and findings"); err != nil {
-		return err
+	if v.Plan, err = figure(plan, planSide, planSide, smallSide, smallSide, "plan view of readings, fitted route and findings"); err != nil {
+		return fmt.Errorf("report: plan view: %w", err)
 	}
 	if d.Route != nil && len(d.Route.Stations) > 1 {
 		var err error
@@ -991,13 +994,10 @@ func (v *view) plots() error {
 		}
 	}
 	for _, g := range profileGroups(d) {
-		p, err := profilePlot(d, g)
+		build := func(bool) (*plot.Plot, error) { return profilePlot(d, g) }
+		s, err := figure(build, 20*vg.Centimeter, 8*vg.Centimeter, smallSide, smallProfile, "measured and fitted field, group "+g.Key)
 		if err != nil {
 			return fmt.Errorf("report: profile of group %q: %w", g.Key, err)
-		}
-		s, err := svg(p, 20*vg.Centimeter, 8*vg.Centimeter, "measured and fitted field, group "+g.Key)
-		if err != nil {
-			return err
 		}
 		v.Profiles = append(v.Profiles, s)
 	}
@@ -1011,21 +1011,49 @@ func alongPlots(d *Document, r *Route, conductor int) (cur, dep template.HTML, e
 	if conductor > 0 {
 		what = fmt.Sprintf("conductor %d", conductor)
 	}
-	p, err := alongPlot(d, r, conductor, "current")
-	if err != nil {
+	build := func(which string) func(bool) (*plot.Plot, error) {
+		return func(narrow bool) (*plot.Plot, error) { return alongPlot(d, r, conductor, which, narrow) }
+	}
+	if cur, err = figure(build("current"), 20*vg.Centimeter, 8.5*vg.Centimeter, smallSide, smallAlong, "current along "+what); err != nil {
 		return "", "", fmt.Errorf("report: current plot of %s: %w", what, err)
 	}
-	if cur, err = svg(p, 20*vg.Centimeter, 8.5*vg.Centimeter, "current along "+what); err != nil {
-		return "", "", err
-	}
-	p, err = alongPlot(d, r, conductor, "depth")
-	if err != nil {
+	if dep, err = figure(build("depth"), 20*vg.Centimeter, 8.5*vg.Centimeter, smallSide, smallAlong, "depth along "+what); err != nil {
 		return "", "", fmt.Errorf("report: depth plot of %s: %w", what, err)
 	}
-	if dep, err = svg(p, 20*vg.Centimeter, 8.5*vg.Centimeter, "depth along "+what); err != nil {
-		return "", "", err
-	}
 	return cur, dep, nil
+}
+
+// Sizes of the figures on a phone's screen (the page's CSS shows them
+// below 40rem): narrow enough that their 9-point text reads about 10 CSS
+// pixels high across a phone's column of about 330 pixels, where the
+// printed sizes, scaled down to it, read 5 to 7.
+const (
+	smallSide    = 10 * vg.Centimeter
+	smallAlong   = 7 * vg.Centimeter
+	smallProfile = 6.5 * vg.Centimeter
+)
+
+// figure renders the plot build makes at w x h, for wide screens and
+// print, and again at sw x sh (build given true) for a phone's screen,
+// each in a box the page's CSS shows on its own kind of screen
+// (fig-wide, fig-narrow).
+func figure(build func(small bool) (*plot.Plot, error), w, h, sw, sh vg.Length, label string) (template.HTML, error) {
+	p, err := build(false)
+	if err != nil {
+		return "", err
+	}
+	wide, err := svg(p, w, h, label)
+	if err != nil {
+		return "", err
+	}
+	if p, err = build(true); err != nil {
+		return "", err
+	}
+	narrow, err := svg(p, sw, sh, label)
+	if err != nil {
+		return "", err
+	}
+	return `<div class="fig-wide">` + wide + `</div><div class="fig-narrow">` + narrow + `</div>`, nil
 }
 
 // profileGroups picks up to MaxProfilePlots groups with profiles: one for

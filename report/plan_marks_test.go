@@ -28,7 +28,7 @@ func TestPlanWarningsOnTop(t *testing.T) {
 		{Kind: "shallow-cover", Severity: SeverityWarning, Position: at, Message: "fixture warning"},
 		{Kind: "poor-fit", Severity: SeverityInfo, Position: at, Message: "fixture note"},
 	}
-	p, err := planPlot(d)
+	p, err := planPlot(d, planSide)
 	if err != nil {
 		t.Fatal(err)
 	}

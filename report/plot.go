@@ -317,9 +317,9 @@ func polyline(p *plot.Plot, d xy, c color.Color, width vg.Length, dashes ...vg.L
 	return l, nil
 }
 
-// planPlot is the plan view: survey points, the fitted route and
-// conductors, and numbered findings.
-func planPlot(d *Document) (*plot.Plot, error) {
+// planPlot is the plan view, to be drawn side long square: survey
+// points, the fitted route and conductors, and numbered findings.
+func planPlot(d *Document, side vg.Length) (*plot.Plot, error) {
 	p := newPlot("", "east (m)", "north (m)")
 	var sx, sy []float64
 	for _, g := range d.Groups {
@@ -410,7 +410,7 @@ func planPlot(d *Document) (*plot.Plot, error) {
 		}
 		p.Legend.Add(fmt.Sprintf("conductor %d", t.Number), l, s)
 	}
-	if err := addFindingMarks(p, d); err != nil {
+	if err := addFindingMarks(p, d, side); err != nil {
 		return nil, err
 	}
 	squareUp(p)
@@ -433,12 +433,12 @@ func maxOf(x []float64) float64 {
 	return m
 }
 
-// planSide is the side of the plan view's square, and planArea about
-// the side of its plotting area, inside the axes: labels on the plan are
-// placed with the metres per point this gives.
+// planSide is the side of the plan view's square (smallSide on a phone's
+// screen), and planMargin about the room its axes take: labels on the
+// plan are placed with the metres per point of the plotting area inside.
 const (
-	planSide = 16 * vg.Centimeter
-	planArea = planSide - 1.5*vg.Centimeter
+	planSide   = 16 * vg.Centimeter
+	planMargin = 1.5 * vg.Centimeter
 )
 
 // markLabel is the label of one or more findings on the plan view: their
@@ -526,7 +526,7 @@ func findingLabels(fs []Finding, scale float64, st text.Style) []markLabel {
 // coloured by severity at each, drawn least pressing first so that a
 // warning's is never hidden under a note's at the same place, and the
 // labels of findingLabels over them all.
-func addFindingMarks(p *plot.Plot, d *Document) error {
+func addFindingMarks(p *plot.Plot, d *Document, side vg.Length) error {
 	if len(d.Findings) == 0 {
 		return nil
 	}
@@ -546,7 +546,7 @@ func addFindingMarks(p *plot.Plot, d *Document) error {
 	// The scale squareUp will give the plan: the larger extent, widened.
 	ext := math.Max(p.X.Max-p.X.Min, p.Y.Max-p.Y.Min)*1.08 + 1
 	st := text.Style{Font: font.Font{Variant: "Sans", Size: vg.Points(9)}, Color: colInk, Handler: plot.DefaultTextHandler}
-	for _, l := range findingLabels(d.Findings, ext/float64(planArea), st) {
+	for _, l := range findingLabels(d.Findings, ext/float64(side-planMargin), st) {
 		lab, err := plotter.NewLabels(plotter.XYLabels{XYs: plotter.XYs{{X: l.x, Y: l.y}}, Labels: []string{l.text}})
 		if err != nil {
 			return err
@@ -578,8 +578,11 @@ func squareUp(p *plot.Plot) {
 // alongPlot plots current (which = "current") or depth along route r
 // with +-2 sigma bars; the depth plot has the ground and minimum-cover
 // lines when they are known. r is d.Route when conductor is 0, else the
-// route of that further conductor, whose steps it marks.
-func alongPlot(d *Document, r *Route, conductor int, which string) (*plot.Plot, error) {
+// route of that further conductor, whose steps it marks. narrow is true
+// for the figure drawn for a phone's screen, whose legend leaves out the
+// minimum cover's code (the caption's depth reference and the settings
+// give it) to stay within the plot's width.
+func alongPlot(d *Document, r *Route, conductor int, which string, narrow bool) (*plot.Plot, error) {
 	var x, y, e, ux, uy []float64
 	for _, st := range r.Stations {
 		v, s := st.Current, st.CurrentSigma
@@ -648,7 +651,7 @@ func alongPlot(d *Document, r *Route, conductor int, which string) (*plot.Plot, 
 					return nil, err
 				}
 				name := fmt.Sprintf("minimum cover %.2f m", mc.Depth)
-				if mc.Code != "" {
+				if mc.Code != "" && !narrow {
 					name += " (" + mc.Code + ")"
 				}
 				p.Legend.Add(name, l)
