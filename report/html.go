@@ -746,7 +746,7 @@ func leastCoverOf(d *Document, r *Route) (lo Station, cover, sigma float64, ok b
 
 // LeastCover says in a sentence the least cover over every conductor
 // followed along the route (conductor 1 and the further ones), naming the
-// conductor and its group: "Least cover over all 2 conductors: 0.349 ±
+// conductor and its group: "Least cover over the 2 conductors followed: 0.349 ±
 // 0.00033 m, conductor 2 at T05 (chainage 20 m along conductor 2)." It is
 // empty when there is no route or the ground is not known. Only used
 // stations count, as for the cover check.
@@ -780,7 +780,7 @@ func LeastCover(d *Document) string {
 	if n == 1 {
 		return fmt.Sprintf("Least cover: %s m, %s.", pm(cover, sigma), where)
 	}
-	return fmt.Sprintf("Least cover over all %d conductors: %s m, %s.", n, pm(cover, sigma), where)
+	return fmt.Sprintf("Least cover over the %d conductors followed: %s m, %s.", n, pm(cover, sigma), where)
 }
 
 // ConductorSummary says in a sentence, as the crew report's summary does,

@@ -83,10 +83,10 @@ func TestLeastCoverOverEveryConductor(t *testing.T) {
 	}
 	const auxCover, feederCover = 0.65 - 0.30, 1.30 - 0.30
 	lc := LeastCover(d)
-	if !strings.HasPrefix(lc, "Least cover over all 2 conductors: ") || !strings.Contains(lc, "conductor 2 at T") {
+	if !strings.HasPrefix(lc, "Least cover over the 2 conductors followed: ") || !strings.Contains(lc, "conductor 2 at T") {
 		t.Errorf("least cover sentence %q: want it over 2 conductors, naming conductor 2", lc)
 	}
-	if c := coverIn(t, lc, "conductors: "); math.Abs(c-auxCover) > 0.003 {
+	if c := coverIn(t, lc, "followed: "); math.Abs(c-auxCover) > 0.003 {
 		t.Errorf("least cover %.4f m, want the auxiliary cable's %.2f m", c, auxCover)
 	}
 	cs := ConductorSummary(d, &d.Conductors[0])

@@ -62,11 +62,11 @@ func TestLocateSummaryLeastCoverEveryConductor(t *testing.T) {
 			c2 = l
 		}
 	}
-	if !strings.HasPrefix(line, "Least cover over all 2 conductors: ") || !strings.Contains(line, "conductor 2 at T") {
+	if !strings.HasPrefix(line, "Least cover over the 2 conductors followed: ") || !strings.Contains(line, "conductor 2 at T") {
 		t.Fatalf("no least-cover line naming conductor 2:\n%s", out)
 	}
 	var v, s float64
-	if _, err := fmt.Sscanf(strings.TrimPrefix(line, "Least cover over all 2 conductors: "), "%g ± %g m", &v, &s); err != nil {
+	if _, err := fmt.Sscanf(strings.TrimPrefix(line, "Least cover over the 2 conductors followed: "), "%g ± %g m", &v, &s); err != nil {
 		t.Fatalf("%q: %v", line, err)
 	}
 	if math.Abs(v-0.35) > kSigma*s+0.001 {
