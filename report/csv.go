@@ -1,6 +1,7 @@
 package report
 
 import (
+	"bytes"
 	"encoding/csv"
 	"fmt"
 	"io"
@@ -8,7 +9,8 @@ import (
 	"strconv"
 )
 
-// csvHeader lists the columns of WriteCSV. lon_deg and lat_deg are empty
+// csvHeader lists the columns of WriteCSV. used and left_out are empty
+// for a row that is no station of a conductor's route (see sourceUse). lon_deg and lat_deg are empty
 // when the document has no geodetic origin; conductor is empty for a
 // source in no track (see Source.Conductor); cover_m and cover_sigma_m are
 // empty when the ground is not known; moment_a_m2 and moment_sigma_a_m2
@@ -24,7 +26,7 @@ var csvHeader = []string{
 	"east_m", "north_m", "up_m", "lon_deg", "lat_deg",
 	"azimuth_deg", "azimuth_sigma_deg", "dip_deg", "dip_sigma_deg",
 	"offset_m", "offset_sigma_m",
-	"points", "rms_nt", "reference_chi2", "dof", "ok", "problem",
+	"points", "rms_nt", "reference_chi2", "dof", "ok", "problem", "used", "left_out",
 	"pair_current_times_spacing_am", "pair_current_times_spacing_sigma_am",
 	"pair_net_current_a", "pair_net_current_sigma_a",
 	"pair_net_current_phase_deg", "pair_net_current_phase_sigma_deg",
@@ -59,7 +61,18 @@ var csvCol = func() map[string]int {
 // its sigma are the magnitude of a dipole's moment as the GeoJSON object
 // gives it (objectMoment). ok and problem are the group's (see Group.OK
 // and Group.Problem): a group the route calls poor has ok true and its
-// reason in problem.
+// reason in problem. used is true when the row's station entered its
+// conductor's current and cover profile (Station.Used, as results.json's
+// route.stations[].used and conductors[].route.stations[].used give it),
+// false when the route left it out, with the reason in left_out, and
+// empty for a row that is no station of a conductor's route (a
+// magnetised object, a line no track follows, a survey without a route).
+//
+// When any of its text is not ASCII (a group named "Süd-01", a problem
+// with "±" in it), the file starts with a UTF-8 byte order mark (EF BB BF),
+// as findings.csv always does, so that spreadsheets that otherwise guess a
+// legacy code page show the text as written; a file of ASCII alone has
+// none, and reads the same either way. Lines end in LF, as findings.csv's.
 //
 // Sigmas have six significant digits, so that none is rounded to zero;
 // each value carries two decimals past its sigma's leading digit (and at
@@ -73,7 +86,10 @@ func WriteCSV(w io.Writer, d *Document) error {
 	if err := d.Validate(); err != nil {
 		return err
 	}
-	cw := csv.NewWriter(w)
+	// Written whole to a buffer first: the byte order mark goes in front
+	// only when the text is not plain ASCII.
+	var buf bytes.Buffer
+	cw := csv.NewWriter(&buf)
 	if err := cw.Write(csvHeader); err != nil {
 		return fmt.Errorf("report: writing CSV: %w", err)
 	}
@@ -108,7 +124,12 @@ func WriteCSV(w io.Writer, d *Document) error {
 			return row
 		}
 		if len(g.Sources) == 0 {
-			if err := cw.Write(base("", "", g.Centroid)); err != nil {
+			row := base("", "", g.Centroid)
+			if st := d.stationOf(&g, 0, nil); st != nil {
+				row[csvCol["used"]] = strconv.FormatBool(st.Used)
+				row[csvCol["left_out"]] = leftOut(&g, st)
+			}
+			if err := cw.Write(row); err != nil {
 				return fmt.Errorf("report: writing CSV: %w", err)
 			}
 			continue
@@ -121,6 +142,10 @@ func WriteCSV(w io.Writer, d *Document) error {
 			}
 			if c := d.sourceChainage(&g, &s); c != nil {
 				set("chainage_m", fix(*c, 3))
+			}
+			if st := d.stationOf(&g, i, &s); st != nil {
+				set("used", strconv.FormatBool(st.Used))
+				set("left_out", leftOut(&g, st))
 			}
 			if p := g.Pair; p != nil && (i == p.Sources[0] || i == p.Sources[1]) {
 				// A line of an unresolved go-and-return pair: its current
@@ -188,7 +213,25 @@ func WriteCSV(w io.Writer, d *Document) error {
 	if err := cw.Error(); err != nil {
 		return fmt.Errorf("report: writing CSV: %w", err)
 	}
+	if !isASCII(buf.Bytes()) {
+		if _, err := io.WriteString(w, utf8BOM); err != nil {
+			return fmt.Errorf("report: writing CSV: %w", err)
+		}
+	}
+	if _, err := buf.WriteTo(w); err != nil {
+		return fmt.Errorf("report: writing CSV: %w", err)
+	}
 	return nil
+}
+
+// isASCII reports whether b holds 7-bit ASCII only.
+func isASCII(b []byte) bool {
+	for _, c := range b {
+		if c >= 0x80 {
+			return false
+		}
+	}
+	return true
 }
 
 // sourceConductor is the number of the conductor along the route that
@@ -204,6 +247,48 @@ func sourceConductor(d *Document, g *Group, i int, s *Source) int {
 		return 1
 	}
 	return 0
+}
+
+// stationOf is the route station that source i of group g is, or nil:
+// its track's station for a source followed as a further conductor, the
+// route's (conductor 1's) station of the group for its first line source
+// (s nil for a group without sources), nil for any other source and
+// without a route.
+func (d *Document) stationOf(g *Group, i int, s *Source) *Station {
+	var r *Route
+	switch {
+	case s != nil && s.Conductor > 0:
+		for k := range d.Conductors {
+			if d.Conductors[k].Number == s.Conductor {
+				r = &d.Conductors[k].Route
+			}
+		}
+	case i == 0 && (s == nil || s.Kind != KindDipole):
+		r = d.Route
+	}
+	if r == nil {
+		return nil
+	}
+	for k := range r.Stations {
+		if r.Stations[k].Key == g.Key {
+			return &r.Stations[k]
+		}
+	}
+	return nil
+}
+
+// leftOut says why station st of group g was left out of its conductor's
+// current and cover profile; empty when it was used. A station is used
+// when its group's fit is usable and it is not taken for a magnetised
+// object (routeOf).
+func leftOut(g *Group, st *Station) string {
+	switch {
+	case st.Used:
+		return ""
+	case !g.OK:
+		return "the fit failed or found no current (see problem)"
+	}
+	return "a magnetised object at this station (see its dipole-anomaly finding)"
 }
 
 // sourceChainage is the chainage of source s of group g along its own

@@ -35,7 +35,9 @@ const (
 //     not use breaks, see routeFeature), with length_m and stations; one
 //     more per further conductor followed along the route
 //     (Document.Conductors), with its number in "conductor" and its median
-//     offset from conductor 1 in offset_m;
+//     offset from conductor 1 in offset_m; where stations the route
+//     left out break or interrupt the line, "not_used" lists their group
+//     keys and "gap_note" says why in words;
 //   - "conductor": one Point per line source, at the point on the
 //     conductor nearest the group's readings (point_m), with the group key,
 //     chainage_m along its own conductor (as results.csv gives it: along a
@@ -45,17 +47,21 @@ const (
 //     depth, depth_reference (DepthReference.Kind, what depth_m is
 //     measured from), cover and their sigmas, the azimuth (the
 //     conductor's bearing there, for a GIS to orient a symbol), the span of conductor the readings see along that bearing
-//     (span_m), the group's ok and problem, and "conductor": 1 for the
+//     (span_m), the group's ok and problem, "conductor": 1 for the
 //     conductor the route follows, the track's number for a further
-//     conductor, absent for a source in no track;
+//     conductor, absent for a source in no track, and "used": whether the
+//     station entered its conductor's current and cover profile
+//     (Station.Used; with "left_out", the reason, when false), absent for
+//     a source that is no station of a conductor's route;
 //   - "object": one Point per dipole source (a magnetised object), with
 //     the group key, chainages, depth, depth_reference and cover and their
 //     sigmas as for a conductor, and the magnitude of its moment,
 //     moment_a_m2, with its sigma moment_sigma_a_m2, as its dipole-anomaly
 //     finding gives them;
 //   - "finding": one Point per finding at its position, with kind,
-//     severity, chainage range and message, "conductor" when it is about
-//     a further conductor, "lone_line": true when it is about a further
+//     severity, chainage range and message, "conductor" (1 for the
+//     route's conductor, the track's number for a further one, as
+//     findings.csv gives it; absent for a lone line), "lone_line": true when it is about a further
 //     line that no conductor's track follows (Finding.Lone), and each of
 //     its values as a property named by valueKey ("step_a" and
 //     "step_sigma_a", "cover_m", ...).
@@ -120,6 +126,12 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 			}
 			if c := sourceConductor(d, &g, i, &s); c > 0 {
 				props["conductor"] = c
+			}
+			if st := d.stationOf(&g, i, &s); st != nil {
+				props["used"] = st.Used
+				if why := leftOut(&g, st); why != "" {
+					props["left_out"] = why
+				}
 			}
 			if c, ok := d.cover(s.Depth); ok {
 				cs := d.sourceCoverSigma(s.DepthSigma)
@@ -189,8 +201,12 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 		if len(f.Groups) > 0 {
 			props["groups"] = f.Groups
 		}
-		if f.Conductor > 0 {
+		switch {
+		case f.Conductor > 0:
 			props["conductor"] = f.Conductor
+		case !f.Lone:
+			// About the route's own conductor, as findings.csv gives it.
+			props["conductor"] = 1
 		}
 		if f.Lone {
 			props["lone_line"] = true
@@ -402,6 +418,32 @@ func (d *Document) routeFeature(r *Route, props map[string]any) (f feature, ok b
 	if len(parts) == 0 {
 		return feature{}, false
 	}
+	// The stations that break the line, between its first and last
+	// drawn station, and why: a GIS user sees the gap explained.
+	first, last := parts[0][0].Key, parts[len(parts)-1][len(parts[len(parts)-1])-1].Key
+	groups := map[string]*Group{}
+	for i := range d.Groups {
+		groups[d.Groups[i].Key] = &d.Groups[i]
+	}
+	var gaps, why []string
+	inside := false
+	for i := range r.Stations {
+		s := &r.Stations[i]
+		if s.Key == first {
+			inside = true
+		}
+		if inside && !s.Used {
+			gaps = append(gaps, s.Key)
+			w := "not used"
+			if g := groups[s.Key]; g != nil {
+				w = leftOut(g, s)
+			}
+			why = append(why, s.Key+": "+w)
+		}
+		if s.Key == last {
+			break
+		}
+	}
 	var length float64
 	var n int
 	lines := make([][]byte, len(parts))
@@ -418,6 +460,11 @@ func (d *Document) routeFeature(r *Route, props map[string]any) (f feature, ok b
 	props["length_m"] = round(length, 3)
 	props["stations"] = n
 	geom := geometry{Type: "LineString", Coordinates: json.RawMessage(lines[0])}
+	if len(gaps) > 0 {
+		props["not_used"] = gaps
+		props["gap_note"] = "The line is broken where the route left a station out of its current and cover profile (" +
+			strings.Join(why, "; ") + "); that station's conductor Point has \"used\": false."
+	}
 	if len(parts) > 1 {
 		props["parts"] = len(parts)
 		geom = geometry{Type: "MultiLineString", Coordinates: json.RawMessage("[" + string(bytes.Join(lines, []byte{','})) + "]")}

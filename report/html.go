@@ -9,6 +9,7 @@ import (
 	"strconv"
 	"strings"
 
+	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/vg"
 
 	"undercurrent/inverse/route"
@@ -552,6 +553,11 @@ func (v *view) summarise() {
 	switch {
 	case warn+caut+info == 0:
 		v.Counts = "No findings: nothing in these estimates calls for action beyond the cautions."
+		if _, known := d.cover(0); known && d.MinCover == nil {
+			// Nothing was checked against a minimum cover: a shallow
+			// conductor gives no finding, so say so beside "no findings".
+			v.Counts = "No findings: nothing in these estimates calls for action beyond the cautions; no minimum cover was given, so no cover was checked (the least cover is given above)."
+		}
 	default:
 		v.Counts = fmt.Sprintf("%s, %s and %s (listed below, most pressing first).",
 			plural(warn, "warning"), plural(caut, "caution"), plural(info, "note"))
@@ -639,21 +645,32 @@ func (v *view) summarise() {
 					deepPoor = deepPoor || poor[s.Key] && s.Depth > hi.Depth
 				}
 			}
+			// With further conductors this line is conductor 1's alone, and
+			// the next one gives the least cover over all of them.
+			subj := "Depth " + shortRef(d) + " is"
+			if len(d.Conductors) > 0 {
+				subj = "Conductor 1: depth " + shortRef(d) + " is"
+			}
 			var line string
 			switch rng, one := span(lo.Depth, hi.Depth); {
 			case one && !deepPoor:
-				line = fmt.Sprintf("Depth %s is %s m at every station", shortRef(d), rng)
+				line = fmt.Sprintf("%s %s m at every station", subj, rng)
 			case one:
-				line = fmt.Sprintf("Depth %s is %s m at every station that fits soundly (deeper only where the fit is poor)", shortRef(d), rng)
+				line = fmt.Sprintf("%s %s m at every station that fits soundly (deeper only where the fit is poor)", subj, rng)
 			case !deepPoor:
-				line = fmt.Sprintf("Depth %s is %s m (shallowest at chainage %.0f m)", shortRef(d), rng, lo.Chainage)
+				line = fmt.Sprintf("%s %s m (shallowest at chainage %.0f m)", subj, rng, lo.Chainage)
 			default:
-				line = fmt.Sprintf("Depth %s is %s m (shallowest at chainage %.0f m; deeper only where the fit is poor)", shortRef(d), rng, lo.Chainage)
+				line = fmt.Sprintf("%s %s m (shallowest at chainage %.0f m; deeper only where the fit is poor)", subj, rng, lo.Chainage)
 			}
 			if c, ok := d.cover(lo.Depth); ok {
 				line += fmt.Sprintf("; least cover %s m", pm(c, d.coverSigma(lo.DepthSigma)))
 			}
 			v.Headline = append(v.Headline, line+".")
+			if len(d.Conductors) > 0 {
+				if lc := LeastCover(d); lc != "" {
+					v.Headline = append(v.Headline, lc)
+				}
+			}
 		}
 		if r.StationScatterCurrent != nil && r.StationScatterDepth != nil {
 			v.Scatter = fmt.Sprintf("Realistic spread: neighbouring stations scatter by %s A in current (%s of the median current) and %s m in depth, one standard deviation (robust, from %d pairs of successive stations, leaving out current steps); expect a single station's current and depth to be off by up to about that much (the scatter also holds any real change between neighbouring stations), often far more than the fits' own ± figures.",
@@ -709,6 +726,63 @@ func (v *view) summarise() {
 // go-and-return pair (Route.PairNet).
 const PairNetSentence = "The conductor is a go-and-return pair (two cores close together carrying opposite currents): the route follows the pair's centre, and its current is the pair's net current, the sum of the two cores' currents (the current that does not return through the pair), so a step in it is current leaving or joining the circuit; the cores' own currents, where the readings part them, are in the table of fits. Depth and cover are the centre's: where the readings do not part the cores, their spacing is not known, and a core laid above the other lies shallower by half of it."
 
+// leastCoverOf is the shallowest used station of route r, its cover and
+// the cover's one-sigma uncertainty (the depth sigma and the ground's in
+// quadrature, as the cover findings use); ok is false when the ground is
+// not known or r has no used station.
+func leastCoverOf(d *Document, r *Route) (lo Station, cover, sigma float64, ok bool) {
+	found := false
+	for _, s := range r.Stations {
+		if s.Used && (!found || s.Depth < lo.Depth) {
+			lo, found = s, true
+		}
+	}
+	if !found {
+		return lo, 0, 0, false
+	}
+	cover, ok = d.cover(lo.Depth)
+	return lo, cover, d.coverSigma(lo.DepthSigma), ok
+}
+
+// LeastCover says in a sentence the least cover over every conductor
+// followed along the route (conductor 1 and the further ones), naming the
+// conductor and its group: "Least cover over the 2 conductors followed: 0.349 ±
+// 0.00033 m, conductor 2 at T05 (chainage 20 m along conductor 2)." It is
+// empty when there is no route or the ground is not known. Only used
+// stations count, as for the cover check.
+func LeastCover(d *Document) string {
+	if d.Route == nil {
+		return ""
+	}
+	best, number, n := Station{}, 0, 0
+	var cover, sigma float64
+	try := func(r *Route, k int) {
+		s, c, sg, ok := leastCoverOf(d, r)
+		if !ok {
+			return
+		}
+		n++
+		if number == 0 || c < cover {
+			best, number, cover, sigma = s, k, c, sg
+		}
+	}
+	try(d.Route, 1)
+	for i := range d.Conductors {
+		try(&d.Conductors[i].Route, d.Conductors[i].Number)
+	}
+	if number == 0 {
+		return ""
+	}
+	where := fmt.Sprintf("conductor %d at %s (chainage %.0f m)", number, best.Key, best.Chainage)
+	if number > 1 {
+		where = fmt.Sprintf("conductor %d at %s (chainage %.0f m along conductor %d)", number, best.Key, best.Chainage, number)
+	}
+	if n == 1 {
+		return fmt.Sprintf("Least cover: %s m, %s.", pm(cover, sigma), where)
+	}
+	return fmt.Sprintf("Least cover over the %d conductors followed: %s m, %s.", n, pm(cover, sigma), where)
+}
+
 // ConductorSummary says in a sentence, as the crew report's summary does,
 // where further conductor t runs beside conductor 1, what it carries and
 // which way, and how deep it lies.
@@ -743,8 +817,14 @@ func trackHeadline(d *Document, t *Track) string {
 		for _, s := range used {
 			lo, hi = math.Min(lo, s.Depth), math.Max(hi, s.Depth)
 		}
-		rng, _ := span(lo, hi)
+		rng, one := span(lo, hi)
 		line += fmt.Sprintf("; depth %s %s m", shortRef(d), rng)
+		if s, c, sg, ok := leastCoverOf(d, &t.Route); ok {
+			line += fmt.Sprintf("; least cover %s m", pm(c, sg))
+			if !one {
+				line += " at " + s.Key
+			}
+		}
 	}
 	return line + "."
 }
@@ -882,12 +962,14 @@ func median(x []float64) float64 {
 func (v *view) plots() error {
 	d := v.D
 	var err error
-	p, err := planPlot(d)
-	if err != nil {
-		return fmt.Errorf("report: plan view: %w", err)
+	plan := func(small bool) (*plot.Plot, error) {
+		if small {
+			return planPlot(d, smallSide)
+		}
+		return planPlot(d, planSide)
 	}
-	if v.Plan, err = svg(p, 16*vg.Centimeter, 16*vg.Centimeter, "plan view of readings, fitted route and findings"); err != nil {
-		return err
+	if v.Plan, err = figure(plan, planSide, planSide, smallSide, smallSide, "plan view of readings, fitted route and findings"); err != nil {
+		return fmt.Errorf("report: plan view: %w", err)
 	}
 	if d.Route != nil && len(d.Route.Stations) > 1 {
 		var err error
@@ -912,13 +994,10 @@ func (v *view) plots() error {
 		}
 	}
 	for _, g := range profileGroups(d) {
-		p, err := profilePlot(d, g)
+		build := func(bool) (*plot.Plot, error) { return profilePlot(d, g) }
+		s, err := figure(build, 20*vg.Centimeter, 8*vg.Centimeter, smallSide, smallProfile, "measured and fitted field, group "+g.Key)
 		if err != nil {
 			return fmt.Errorf("report: profile of group %q: %w", g.Key, err)
-		}
-		s, err := svg(p, 20*vg.Centimeter, 8*vg.Centimeter, "measured and fitted field, group "+g.Key)
-		if err != nil {
-			return err
 		}
 		v.Profiles = append(v.Profiles, s)
 	}
@@ -932,21 +1011,49 @@ func alongPlots(d *Document, r *Route, conductor int) (cur, dep template.HTML, e
 	if conductor > 0 {
 		what = fmt.Sprintf("conductor %d", conductor)
 	}
-	p, err := alongPlot(d, r, conductor, "current")
-	if err != nil {
+	build := func(which string) func(bool) (*plot.Plot, error) {
+		return func(narrow bool) (*plot.Plot, error) { return alongPlot(d, r, conductor, which, narrow) }
+	}
+	if cur, err = figure(build("current"), 20*vg.Centimeter, 8.5*vg.Centimeter, smallSide, smallAlong, "current along "+what); err != nil {
 		return "", "", fmt.Errorf("report: current plot of %s: %w", what, err)
 	}
-	if cur, err = svg(p, 20*vg.Centimeter, 8.5*vg.Centimeter, "current along "+what); err != nil {
-		return "", "", err
-	}
-	p, err = alongPlot(d, r, conductor, "depth")
-	if err != nil {
+	if dep, err = figure(build("depth"), 20*vg.Centimeter, 8.5*vg.Centimeter, smallSide, smallAlong, "depth along "+what); err != nil {
 		return "", "", fmt.Errorf("report: depth plot of %s: %w", what, err)
 	}
-	if dep, err = svg(p, 20*vg.Centimeter, 8.5*vg.Centimeter, "depth along "+what); err != nil {
-		return "", "", err
-	}
 	return cur, dep, nil
+}
+
+// Sizes of the figures on a phone's screen (the page's CSS shows them
+// below 40rem): narrow enough that their 9-point text reads about 10 CSS
+// pixels high across a phone's column of about 330 pixels, where the
+// printed sizes, scaled down to it, read 5 to 7.
+const (
+	smallSide    = 10 * vg.Centimeter
+	smallAlong   = 7 * vg.Centimeter
+	smallProfile = 6.5 * vg.Centimeter
+)
+
+// figure renders the plot build makes at w x h, for wide screens and
+// print, and again at sw x sh (build given true) for a phone's screen,
+// each in a box the page's CSS shows on its own kind of screen
+// (fig-wide, fig-narrow).
+func figure(build func(small bool) (*plot.Plot, error), w, h, sw, sh vg.Length, label string) (template.HTML, error) {
+	p, err := build(false)
+	if err != nil {
+		return "", err
+	}
+	wide, err := svg(p, w, h, label)
+	if err != nil {
+		return "", err
+	}
+	if p, err = build(true); err != nil {
+		return "", err
+	}
+	narrow, err := svg(p, sw, sh, label)
+	if err != nil {
+		return "", err
+	}
+	return `<div class="fig-wide">` + wide + `</div><div class="fig-narrow">` + narrow + `</div>`, nil
 }
 
 // profileGroups picks up to MaxProfilePlots groups with profiles: one for

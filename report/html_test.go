@@ -33,9 +33,10 @@ func TestHTML(t *testing.T) {
 				t.Errorf("page lacks the caution %q", c)
 			}
 		}
-		// Plan view, current, depth and MaxProfilePlots profiles.
-		if n := strings.Count(page, "<svg"); n != 3+MaxProfilePlots {
-			t.Errorf("page has %d <svg> elements, want %d", n, 3+MaxProfilePlots)
+		// Plan view, current, depth and MaxProfilePlots profiles, each
+		// drawn wide and narrow (figure).
+		if n := strings.Count(page, "<svg"); n != 2*(3+MaxProfilePlots) {
+			t.Errorf("page has %d <svg> elements, want %d", n, 2*(3+MaxProfilePlots))
 		}
 		if strings.Contains(page, "<?xml") {
 			t.Error("page has an XML prolog inside the HTML")
@@ -83,8 +84,8 @@ func TestHTMLSingleGroup(t *testing.T) {
 		t.Fatal(err)
 	}
 	page := buf.String()
-	if n := strings.Count(page, "<svg"); n != 2 {
-		t.Errorf("page has %d <svg> elements, want 2 (plan and profile)", n)
+	if n := strings.Count(page, "<svg"); n != 4 {
+		t.Errorf("page has %d <svg> elements, want 4 (plan and profile, each wide and narrow)", n)
 	}
 	if !strings.Contains(page, "Conductor 1: 83.73 ± 0.60 A") || !strings.Contains(page, "No findings") {
 		t.Errorf("summary does not state the conductor:\n%s", page[strings.Index(page, "<h2>Summary"):][:600])

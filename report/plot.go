@@ -7,11 +7,14 @@ import (
 	"image/color"
 	"math"
 	"regexp"
+	"sort"
 	"strconv"
 	"strings"
 
 	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/font"
 	"gonum.org/v1/plot/plotter"
+	"gonum.org/v1/plot/text"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 	"gonum.org/v1/plot/vg/vgsvg"
@@ -90,9 +93,22 @@ func newPlot(title, xlabel, ylabel string) *plot.Plot {
 // ticks: on a range of 1.63 to 1.88 it puts "1.7" on the tick at 1.65.
 type exactTicks struct{}
 
-// Ticks implements plot.Ticker.
+// Ticks implements plot.Ticker. Where plot.DefaultTicks labels fewer
+// than minLabelled ticks (it labelled a depth axis of 0 to 3.7 m only "0"
+// and "3"), the ticks are denseTicks' instead.
 func (exactTicks) Ticks(min, max float64) []plot.Tick {
 	ticks := plot.DefaultTicks{}.Ticks(min, max)
+	n := 0
+	for _, t := range ticks {
+		if t.Label != "" {
+			n++
+		}
+	}
+	if n < minLabelled {
+		if dense := denseTicks(min, max, denseLabelled); dense != nil {
+			ticks = dense
+		}
+	}
 	var vals []float64
 	for _, t := range ticks {
 		if t.Label != "" {
@@ -108,6 +124,53 @@ func (exactTicks) Ticks(min, max float64) []plot.Tick {
 		}
 	}
 	return ticks
+}
+
+// minLabelled is the fewest labelled ticks an axis keeps from
+// plot.DefaultTicks, and denseLabelled the fewest denseTicks gives in
+// their place: enough to read a value off the axis to about a fifth of
+// their spacing with the unlabelled ticks between.
+const (
+	minLabelled   = 5
+	denseLabelled = 5
+)
+
+// denseTicks places labelled ticks at the largest step of 1, 2 or 5 times
+// a power of ten that gives at least want of them between min and max,
+// with unlabelled ticks between at a fifth of the step (a quarter for a
+// step of 2); nil when the range is empty or not finite. Labels are left
+// for tickLabels to write.
+func denseTicks(min, max float64, want int) []plot.Tick {
+	span := max - min
+	if !(span > 0) || math.IsInf(span, 0) || math.IsNaN(span) {
+		return nil
+	}
+	top := math.Floor(math.Log10(span))
+	for e := top; e >= top-4; e-- {
+		for _, m := range []float64{5, 2, 1} {
+			step := m * math.Pow(10, e)
+			first, last := math.Ceil(min/step), math.Floor(max/step)
+			if last-first+1 < float64(want) {
+				continue
+			}
+			sub := 5.0
+			if m == 2 {
+				sub = 4
+			}
+			minor := step / sub
+			var ticks []plot.Tick
+			for i := math.Ceil(min / minor); i <= math.Floor(max/minor); i++ {
+				t := plot.Tick{Value: i * minor}
+				if math.Mod(i, sub) == 0 {
+					t.Value = i / sub * step
+					t.Label = "x" // written by tickLabels
+				}
+				ticks = append(ticks, t)
+			}
+			return ticks
+		}
+	}
+	return nil
 }
 
 // tickLabelTol is how far, as a fraction of the spacing of the labelled
@@ -254,9 +317,9 @@ func polyline(p *plot.Plot, d xy, c color.Color, width vg.Length, dashes ...vg.L
 	return l, nil
 }
 
-// planPlot is the plan view: survey points, the fitted route and
-// conductors, and numbered findings.
-func planPlot(d *Document) (*plot.Plot, error) {
+// planPlot is the plan view, to be drawn side long square: survey
+// points, the fitted route and conductors, and numbered findings.
+func planPlot(d *Document, side vg.Length) (*plot.Plot, error) {
 	p := newPlot("", "east (m)", "north (m)")
 	var sx, sy []float64
 	for _, g := range d.Groups {
@@ -347,7 +410,7 @@ func planPlot(d *Document) (*plot.Plot, error) {
 		}
 		p.Legend.Add(fmt.Sprintf("conductor %d", t.Number), l, s)
 	}
-	if err := addFindingMarks(p, d); err != nil {
+	if err := addFindingMarks(p, d, side); err != nil {
 		return nil, err
 	}
 	squareUp(p)
@@ -370,32 +433,128 @@ func maxOf(x []float64) float64 {
 	return m
 }
 
-// addFindingMarks numbers the findings on the plan view.
-func addFindingMarks(p *plot.Plot, d *Document) error {
+// planSide is the side of the plan view's square (smallSide on a phone's
+// screen), and planMargin about the room its axes take: labels on the
+// plan are placed with the metres per point of the plotting area inside.
+const (
+	planSide   = 16 * vg.Centimeter
+	planMargin = 1.5 * vg.Centimeter
+)
+
+// markLabel is the label of one or more findings on the plan view: their
+// numbers, the position of the first (the most pressing), and the offset
+// of the label's lower left corner from it, points.
+type markLabel struct {
+	x, y   float64
+	text   string
+	offset vg.Point
+}
+
+// Label geometry on the plan view, points: the triangles' radius, the gap
+// between a mark and its label, and the distance within which marks share
+// one label.
+const (
+	markRadius = 4
+	markGap    = 2
+	markShare  = 10
+)
+
+// findingLabels numbers the findings for the plan view, at scale metres
+// per point, with text style st. Findings are taken most pressing first
+// (their order in the document); one whose mark lies within markShare
+// points of an earlier label's mark joins that label ("1,8"), so that a
+// note at the place of a warning does not print its number over the
+// warning's. Each label then takes the first place beside its mark, right
+// and above, right and below, left and above, left and below, then
+// further up and down, that overlaps neither a label placed before it
+// nor any finding's mark.
+func findingLabels(fs []Finding, scale float64, st text.Style) []markLabel {
+	var out []markLabel
+	var nums [][]string
+	for i, f := range fs {
+		joined := false
+		for k := range out {
+			if math.Hypot(f.Position[0]-out[k].x, f.Position[1]-out[k].y) <= markShare*scale {
+				nums[k] = append(nums[k], strconv.Itoa(i+1))
+				joined = true
+				break
+			}
+		}
+		if !joined {
+			out = append(out, markLabel{x: f.Position[0], y: f.Position[1]})
+			nums = append(nums, []string{strconv.Itoa(i + 1)})
+		}
+	}
+	type box struct{ x0, y0, x1, y1 float64 }
+	overlaps := func(a, b box) bool { return a.x0 < b.x1 && b.x0 < a.x1 && a.y0 < b.y1 && b.y0 < a.y1 }
+	pt := func(l markLabel) (float64, float64) { return l.x / scale, l.y / scale }
+	var placed []box
+	for k := range out {
+		out[k].text = strings.Join(nums[k], ",")
+		w, h := float64(st.Width(out[k].text)), float64(st.Height(out[k].text))
+		px, py := pt(out[k])
+		r, g := float64(markRadius), float64(markGap)
+		cands := [][2]float64{{r + g, g}, {r + g, -g - h}, {-r - g - w, g}, {-r - g - w, -g - h}}
+		for n := 1; n <= 2*len(out)+2; n++ {
+			cands = append(cands, [2]float64{r + g, g + float64(n)*h}, [2]float64{r + g, -g - h - float64(n)*h})
+		}
+		choice := cands[0]
+	search:
+		for _, c := range cands {
+			b := box{px + c[0], py + c[1], px + c[0] + w, py + c[1] + h}
+			for _, q := range placed {
+				if overlaps(b, q) {
+					continue search
+				}
+			}
+			for _, f := range fs {
+				mx, my := f.Position[0]/scale, f.Position[1]/scale
+				if overlaps(b, box{mx - r, my - r, mx + r, my + r}) {
+					continue search
+				}
+			}
+			choice = c
+			break
+		}
+		out[k].offset = vg.Point{X: vg.Length(choice[0]), Y: vg.Length(choice[1])}
+		placed = append(placed, box{px + choice[0], py + choice[1], px + choice[0] + w, py + choice[1] + h})
+	}
+	return out
+}
+
+// addFindingMarks numbers the findings on the plan view: a triangle
+// coloured by severity at each, drawn least pressing first so that a
+// warning's is never hidden under a note's at the same place, and the
+// labels of findingLabels over them all.
+func addFindingMarks(p *plot.Plot, d *Document, side vg.Length) error {
 	if len(d.Findings) == 0 {
 		return nil
 	}
-	var lx, ly []float64
-	var labels []string
-	for i, f := range d.Findings {
-		c := severityColour(f.Severity)
-		if _, err := scatter(p, xy{[]float64{f.Position[0]}, []float64{f.Position[1]}}, draw.TriangleGlyph{}, c, 4); err != nil {
+	order := make([]int, len(d.Findings))
+	for i := range order {
+		order[i] = i
+	}
+	sort.SliceStable(order, func(a, b int) bool {
+		return severityRank(d.Findings[order[a]].Severity) > severityRank(d.Findings[order[b]].Severity)
+	})
+	for _, i := range order {
+		f := d.Findings[i]
+		if _, err := scatter(p, xy{[]float64{f.Position[0]}, []float64{f.Position[1]}}, draw.TriangleGlyph{}, severityColour(f.Severity), markRadius); err != nil {
 			return err
 		}
-		lx, ly = append(lx, f.Position[0]), append(ly, f.Position[1])
-		labels = append(labels, fmt.Sprintf(" %d", i+1))
 	}
-	lab, err := plotter.NewLabels(plotter.XYLabels{XYs: xy{lx, ly}.toXYs(), Labels: labels})
-	if err != nil {
-		return err
+	// The scale squareUp will give the plan: the larger extent, widened.
+	ext := math.Max(p.X.Max-p.X.Min, p.Y.Max-p.Y.Min)*1.08 + 1
+	st := text.Style{Font: font.Font{Variant: "Sans", Size: vg.Points(9)}, Color: colInk, Handler: plot.DefaultTextHandler}
+	for _, l := range findingLabels(d.Findings, ext/float64(side-planMargin), st) {
+		lab, err := plotter.NewLabels(plotter.XYLabels{XYs: plotter.XYs{{X: l.x, Y: l.y}}, Labels: []string{l.text}})
+		if err != nil {
+			return err
+		}
+		lab.TextStyle[0] = st
+		lab.Offset = l.offset
+		p.Add(lab)
 	}
-	for i := range lab.TextStyle {
-		lab.TextStyle[i].Font.Variant = "Sans"
-		lab.TextStyle[i].Font.Size = vg.Points(9)
-		lab.TextStyle[i].Color = colInk
-	}
-	lab.Offset = vg.Point{X: 3, Y: 3}
-	p.Add(lab)
 	return nil
 }
 
@@ -419,8 +578,11 @@ func squareUp(p *plot.Plot) {
 // alongPlot plots current (which = "current") or depth along route r
 // with +-2 sigma bars; the depth plot has the ground and minimum-cover
 // lines when they are known. r is d.Route when conductor is 0, else the
-// route of that further conductor, whose steps it marks.
-func alongPlot(d *Document, r *Route, conductor int, which string) (*plot.Plot, error) {
+// route of that further conductor, whose steps it marks. narrow is true
+// for the figure drawn for a phone's screen, whose legend leaves out the
+// minimum cover's code (the caption's depth reference and the settings
+// give it) to stay within the plot's width.
+func alongPlot(d *Document, r *Route, conductor int, which string, narrow bool) (*plot.Plot, error) {
 	var x, y, e, ux, uy []float64
 	for _, st := range r.Stations {
 		v, s := st.Current, st.CurrentSigma
@@ -489,7 +651,7 @@ func alongPlot(d *Document, r *Route, conductor int, which string) (*plot.Plot, 
 					return nil, err
 				}
 				name := fmt.Sprintf("minimum cover %.2f m", mc.Depth)
-				if mc.Code != "" {
+				if mc.Code != "" && !narrow {
 					name += " (" + mc.Code + ")"
 				}
 				p.Legend.Add(name, l)

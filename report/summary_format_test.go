@@ -125,8 +125,8 @@ func TestSummaryDepthAndReturnConductor(t *testing.T) {
 			t.Fatalf("%d further conductors, want 1", len(d.Conductors))
 		}
 		page := htmlText(t, d)
-		if want := "Depth below the sensors is 1.20 m at every station."; !strings.Contains(page, want) {
-			t.Errorf("page lacks %q:\n%s", want, around(page, "Depth below"))
+		if want := "Conductor 1: depth below the sensors is 1.20 m at every station."; !strings.Contains(page, want) {
+			t.Errorf("page lacks %q:\n%s", want, around(page, "depth below"))
 		}
 		if strings.Contains(page, "1.20 to 1.20") {
 			t.Error("page writes a constant depth as a range")

@@ -48,6 +48,25 @@ dt { font-weight: 600; }
 dd { margin: 0; }
 code { font-size: .85em; word-break: break-all; }
 .wide { overflow-x: auto; }
+/* Each figure is drawn twice: wide for screens and print, narrow for a
+   phone, where the wide one's text would be scaled down to 5-7 px. */
+.fig-narrow { display: none; }
+@media screen and (max-width: 40rem) {
+  body { padding: 1rem .6rem 2rem; }
+  .fig-wide { display: none; }
+  .fig-narrow { display: block; }
+  dl { grid-template-columns: 1fr; gap: 0 1rem; }
+  dd { margin-bottom: .4rem; }
+  /* The findings stack, one block each: number, severity and kind on a
+     line, then the detail (the numbers a crew acts on), then where. */
+  table.findings thead { display: none; }
+  table.findings, table.findings tbody { display: block; }
+  table.findings tr { display: flex; flex-wrap: wrap; align-items: baseline; gap: 0 .5rem;
+    padding: .4rem 0; border-bottom: 1px solid var(--rule); }
+  table.findings td { display: block; border: 0; padding: .1rem 0; }
+  table.findings td.detail { order: 4; flex-basis: 100%; }
+  table.findings td.where { order: 5; flex-basis: 100%; color: var(--muted); font-size: .85rem; }
+}
 table.groups { font-size: .85rem; }
 table.groups th, table.groups td { padding: .25rem .35rem; }
 footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rule); color: var(--muted); font-size: .8rem; }
@@ -87,12 +106,12 @@ footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rul
 {{with .HowSure}}<p class="howsure">{{.}}</p>{{end}}
 {{with .SigmaNote}}<p class="note">{{.}}</p>{{end}}
 {{if .Findings}}
-<table>
+<div class="wide"><table class="findings">
 <thead><tr><th>#</th><th>Severity</th><th>What</th><th>Where</th><th>Detail</th></tr></thead>
 <tbody>
-{{range .Findings}}<tr><td class="num">{{.N}}</td><td><span class="sev sev-{{.Severity}}">{{.Severity}}</span></td><td>{{.Kind}}</td><td>{{.Where}}</td><td>{{.Message}}{{with .Values}}<div class="values">{{.}}</div>{{end}}</td></tr>
+{{range .Findings}}<tr><td class="num">{{.N}}</td><td><span class="sev sev-{{.Severity}}">{{.Severity}}</span></td><td>{{.Kind}}</td><td class="where">{{.Where}}</td><td class="detail">{{.Message}}{{with .Values}}<div class="values">{{.}}</div>{{end}}</td></tr>
 {{end}}</tbody>
-</table>
+</table></div>
 {{end}}
 </section>
 
@@ -160,12 +179,12 @@ footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rul
 {{range .Settings}}<dt>{{index . 0}}</dt><dd>{{index . 1}}</dd>
 {{end}}</dl>
 {{if .D.Inputs}}<h3>Input files</h3>
-<table>
+<div class="wide"><table>
 <thead><tr><th>Role</th><th>File</th><th>Readings</th><th>SHA-256</th></tr></thead>
 <tbody>
 {{range .D.Inputs}}<tr><td>{{.Role}}</td><td><code>{{.Path}}</code></td><td class="num">{{if .Rows}}{{.Rows}}{{else}}n/a{{end}}</td><td><code>{{.SHA256}}</code></td></tr>
 {{end}}</tbody>
-</table>{{if .InputsNA}}
+</table></div>{{if .InputsNA}}
 <p class="values">Readings n/a: the file holds no readings of the survey (a calibration file).</p>{{end}}{{end}}
 {{if .D.Warnings}}<h3>Warnings from the run</h3>
 <ul>

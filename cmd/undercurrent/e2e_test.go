@@ -528,7 +528,7 @@ func TestDemo(t *testing.T) {
 	// shallow stretch, 0.70 m below the sensors at T13), the deepest from
 	// those that fit soundly (1.29 m; the poor fit at the bend, T19, read
 	// 1.34 m), saying so.
-	for _, want := range []string{"<svg", "live", "Fenwick Lane", "Depth below the sensors is 0.70 to 1.29 m (shallowest at chainage 60 m; deeper only where the fit is poor)"} {
+	for _, want := range []string{"<svg", "live", "Fenwick Lane", "Conductor 1: depth below the sensors is 0.70 to 1.29 m (shallowest at chainage 60 m; deeper only where the fit is poor)"} {
 		if !bytes.Contains(html, []byte(want)) {
 			t.Errorf("report.html does not contain %q", want)
 		}

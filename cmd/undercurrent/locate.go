@@ -1706,6 +1706,10 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 	for i := range doc.Conductors {
 		fmt.Fprintln(w, report.ConductorSummary(doc, &doc.Conductors[i]))
 	}
+	// The least cover over every conductor followed, naming which.
+	if lc := report.LeastCover(doc); lc != "" {
+		fmt.Fprintln(w, lc)
+	}
 	if len(doc.Findings) == 0 {
 		fmt.Fprintln(w, "findings: none")
 	} else {
