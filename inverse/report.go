@@ -67,10 +67,97 @@ func (f *fitter) reorder(c *candidate) error {
 
 // summarise computes the covariance from the full Jacobian at the solution and the
 // reported quantities of every line with their one-sigma uncertainties (delta method).
+// The lines are listed strongest first (reorder); a go-and-return pair the data do
+// not separate (PairEstimate) among three or more lines is ranked as one conductor,
+// by the field it makes (pairRank), its lines side by side.
 func (f *fitter) summarise(c *candidate) (*summary, error) {
 	if err := f.reorder(c); err != nil {
 		return nil, err
 	}
+	su, err := f.summariseAsIs(c)
+	if err != nil || len(su.pairs) == 0 || len(su.lines) < 3 {
+		return su, err
+	}
+	idx := pairRank(su, f.sv.zmean)
+	if idx == nil {
+		return su, nil
+	}
+	if err := c.permute(idx); err != nil {
+		return nil, err
+	}
+	return f.summariseAsIs(c)
+}
+
+// pairRank returns the order in which the lines of su are to be listed when its
+// unresolved pairs are ranked as conductors, or nil when that is their order already.
+// A line ranks by its current; a pair by its net current plus its current times
+// spacing over its centre's depth below the sensors (the line current whose field at
+// that depth matches the pair's line dipole's), its lines together, the one with the
+// larger current first. The lines of a pair fitted collapsed carry thousands of
+// amperes each, and the magnitude order put such a pair first on some traverses and a
+// 6 A cable beside it first on others, so the route's conductor changed from traverse
+// to traverse.
+func pairRank(su *summary, zSensors float64) []int {
+	type unit struct {
+		lines    []int
+		strength float64
+	}
+	inPair := make([]int, len(su.lines))
+	for i := range inPair {
+		inPair[i] = -1
+	}
+	for p, pe := range su.pairs {
+		inPair[pe.Lines[0]], inPair[pe.Lines[1]] = p, p
+	}
+	var units []unit
+	for i, e := range su.lines {
+		switch p := inPair[i]; {
+		case p < 0:
+			units = append(units, unit{[]int{i}, math.Abs(e.Current)})
+		case su.pairs[p].Lines[0] == i: // Lines[0] < Lines[1]
+			pe := su.pairs[p]
+			a, b := pe.Lines[0], pe.Lines[1]
+			if math.Abs(su.lines[b].Current) > math.Abs(su.lines[a].Current) {
+				a, b = b, a
+			}
+			st := math.Abs(pe.NetCurrent)
+			if h := zSensors - pe.Point[2]; h > 0 {
+				st += pe.Moment / h
+			}
+			units = append(units, unit{[]int{a, b}, st})
+		}
+	}
+	sort.SliceStable(units, func(a, b int) bool { return units[a].strength > units[b].strength })
+	idx := make([]int, 0, len(su.lines))
+	for _, u := range units {
+		idx = append(idx, u.lines...)
+	}
+	for i, j := range idx {
+		if i != j {
+			return idx
+		}
+	}
+	return nil
+}
+
+// permute lists the candidate's lines in the order idx (line i becomes line idx[i]'s).
+func (c *candidate) permute(idx []int) error {
+	sp := c.sp
+	if err := sp.evaluate(c.x); err != nil {
+		return err
+	}
+	g := make([]lineGeom, len(sp.geom))
+	for i, j := range idx {
+		g[i] = sp.geom[j]
+	}
+	sp.geom = g
+	sp.ok = false
+	c.x, _, _ = sp.pack()
+	return sp.evaluate(c.x)
+}
+
+// summariseAsIs is summarise without reordering the lines.
+func (f *fitter) summariseAsIs(c *candidate) (*summary, error) {
 	sp := c.sp
 	// The triangular factor of the full Jacobian, assembled from the factorisation the
 	// variable projection holds (fullR; TestFullRCovariance checks it against the
@@ -238,19 +325,47 @@ func (f *fitter) summarise(c *candidate) (*summary, error) {
 		off += g.nfree()
 	}
 	su.flip = flip
-	if nl == 2 {
-		if pe, ok := f.pairOf(c, su, 0, 1); ok {
-			su.pairs = append(su.pairs, pe)
-			for _, l := range pe.Lines {
-				e := &su.lines[l]
-				e.Identifiable.Current, e.Identifiable.Phase = false, false
-				e.Identifiable.Depth, e.Identifiable.Offset = false, false
-				e.CurrentSigma, e.PhaseSigma, e.RelativePhaseSigma = 0, 0, 0
-				e.DepthSigma, e.OffsetSigma = 0, 0
-				// The note on an insignificant current says the same of this line.
-				e.Notes = slices.DeleteFunc(e.Notes, func(n string) bool { return strings.HasPrefix(n, "current not significantly different from zero") })
-				e.Notes = append(e.Notes, "one of a go-and-return pair whose currents and spacing the data do not separate: its current and position are not determined; the pair's centre, depth and current times spacing are, and are reported for the pair")
+	// Go-and-return pairs among the lines, each line in one pair at most. Among three
+	// or more lines, the closest pairs first, and only lines closer together than
+	// their centre lies below the sensors (a pair the data do not separate is close
+	// for its depth): a 6 A cable 1.6 m beside a pair's core whose current was not
+	// resolved had been paired with that core, and the pair's other core left alone.
+	type cand struct {
+		pe PairEstimate
+		d  float64
+	}
+	var cands []cand
+	for i := range nl {
+		for j := i + 1; j < nl && !(nl > 2 && (c.noPairs || len(sp.dips) > 0 || f.set.Dipoles > 0)); j++ {
+			pe, ok := f.pairOf(c, su, i, j)
+			if !ok {
+				continue
 			}
+			d := norm(sub(su.lines[i].Point, su.lines[j].Point))
+			if nl > 2 && !(d < f.sv.zmean-pe.Point[2]) {
+				continue
+			}
+			cands = append(cands, cand{pe, d})
+		}
+	}
+	sort.SliceStable(cands, func(a, b int) bool { return cands[a].d < cands[b].d })
+	var paired [8]bool // on the stack for up to 8 lines
+	for _, cd := range cands {
+		pe := cd.pe
+		if pe.Lines[1] >= len(paired) || paired[pe.Lines[0]] || paired[pe.Lines[1]] {
+			continue
+		}
+		paired[pe.Lines[0]], paired[pe.Lines[1]] = true, true
+		su.pairs = append(su.pairs, pe)
+		for _, l := range pe.Lines {
+			e := &su.lines[l]
+			e.Identifiable.Current, e.Identifiable.Phase = false, false
+			e.Identifiable.Depth, e.Identifiable.Offset = false, false
+			e.CurrentSigma, e.PhaseSigma, e.RelativePhaseSigma = 0, 0, 0
+			e.DepthSigma, e.OffsetSigma = 0, 0
+			// The note on an insignificant current says the same of this line.
+			e.Notes = slices.DeleteFunc(e.Notes, func(n string) bool { return strings.HasPrefix(n, "current not significantly different from zero") })
+			e.Notes = append(e.Notes, "one of a go-and-return pair whose currents and spacing the data do not separate: its current and position are not determined; the pair's centre, depth and current times spacing are, and are reported for the pair")
 		}
 	}
 	// A line far weaker than the strongest often absorbs departures from the model (a
@@ -869,7 +984,7 @@ func (f *fitter) pairOf(c *candidate, su *summary, i, j int) (PairEstimate, bool
 		return PairEstimate{}, false
 	}
 	if base[pqSpacing] < 0.02*h && !f.splitting {
-		s2, ok := f.splitSigmas(c, base, h)
+		s2, ok := f.splitSigmas(c, base, h, i, j)
 		if !ok {
 			return PairEstimate{}, false
 		}
@@ -943,15 +1058,15 @@ func (f *fitter) pairQuantities(sp *separable, su *summary, i, j int) (base, sg 
 	return base, sg
 }
 
-// splitSigmas returns the sigmas of the pair quantities of the two-line candidate c,
-// whose lines have collapsed onto one another at the pair's centre (base), evaluated
-// with the lines split across the centre by h/10 (h the centre's depth below the
-// sensors) along the line joining them (horizontally when they coincide), the
-// currents and background solved again for that geometry (see pairOf).
-func (f *fitter) splitSigmas(c *candidate, base []float64, h float64) ([]float64, bool) {
+// splitSigmas returns the sigmas of the pair quantities of lines i and j of candidate
+// c, which have collapsed onto one another at the pair's centre (base), evaluated with
+// the lines split across the centre by h/10 (h the centre's depth below the sensors)
+// along the line joining them (horizontally when they coincide), the other sources kept
+// and the currents and background solved again for that geometry (see pairOf).
+func (f *fitter) splitSigmas(c *candidate, base []float64, h float64, i, j int) ([]float64, bool) {
 	sp := c.sp
-	g0, g1 := sp.geom[0], sp.geom[1]
-	// Positions across the lines in line 0's frame: offset along its n0, and height.
+	g0, g1 := sp.geom[i], sp.geom[j]
+	// Positions across the lines in line i's frame: offset along its n0, and height.
 	s0 := dot(sub(add(g0.anchor, scale(g0.n0, g0.s)), g0.anchor), g0.n0)
 	s1 := dot(sub(add(g1.anchor, scale(g1.n0, g1.s)), g0.anchor), g0.n0)
 	us, uz := s1-s0, g1.z-g0.z
@@ -968,8 +1083,13 @@ func (f *fitter) splitSigmas(c *candidate, base []float64, h float64) ([]float64
 	if a.z > a.zHi || b.z > b.zHi {
 		return nil, false
 	}
-	geom := []lineGeom{a, b}
-	sp2 := newSeparableIn(f.scr, f.sv.pts, f.sv.y, f.sv.nrhs, f.set.Background, f.sv.centroid, geom, nil)
+	geom := append([]lineGeom(nil), sp.geom...)
+	geom[i], geom[j] = a, b
+	var dips []dipGeom
+	if len(sp.dips) > 0 {
+		dips = append(dips, sp.dips...)
+	}
+	sp2 := newSeparableIn(f.scr, f.sv.pts, f.sv.y, f.sv.nrhs, f.set.Background, f.sv.centroid, geom, dips)
 	sp2.ptsLo, sp2.ptsHi = f.sv.lo, f.sv.hi
 	sp2.lmWork, sp2.scr, sp2.pd = &f.scr.lm, f.scr, &f.sv.proj
 	sp2.w = sp.w
@@ -980,12 +1100,12 @@ func (f *fitter) splitSigmas(c *candidate, base []float64, h float64) ([]float64
 	}
 	cs := &candidate{sp: sp2, x: x, res: c.res, rss: sumSq(res), iters: c.iters}
 	f.splitting = true
-	su2, err := f.summarise(cs)
+	su2, err := f.summariseAsIs(cs)
 	f.splitting = false
 	if err != nil {
 		return nil, false
 	}
-	_, sg := f.pairQuantities(cs.sp, su2, 0, 1)
+	_, sg := f.pairQuantities(cs.sp, su2, i, j)
 	return sg, true
 }
 

@@ -514,6 +514,10 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute boo
 	pair := pairOf(res)
 	if pair != nil {
 		g.Pair = buildPair(pair, ac)
+	} else if len(res.Pairs) > 0 {
+		// A pair beside a stronger conductor: reported with the group,
+		// not followed (its lines' currents are not determined).
+		g.Pair = buildPair(&res.Pairs[0], ac)
 	}
 	// An unresolved go-and-return pair has no current of its own lines,
 	// but its centre and current times spacing are found (Group.Pair).

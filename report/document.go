@@ -268,11 +268,12 @@ type Group struct {
 	// Profile holds a compact copy of the readings for plots; nil when
 	// not kept.
 	Profile *Profile `json:"profile,omitempty"`
-	// Pair, when not nil, says that the group's conductor is a
-	// go-and-return pair whose current and spacing the readings do not
-	// separate: its first two sources are the pair's lines, whose
-	// currents and positions are then not identifiable, and Pair holds
-	// what is determined.
+	// Pair, when not nil, is a go-and-return pair among the group's
+	// sources whose current and spacing the readings do not separate:
+	// Pair.Sources names its two lines, whose currents and positions are
+	// then not identifiable, and Pair holds what is determined. When it
+	// holds the first source, the group's conductor is the pair; it may
+	// also lie beside a stronger conductor (a cable beside a pair).
 	Pair *Pair `json:"pair,omitempty"`
 }
 
