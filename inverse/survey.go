@@ -602,3 +602,160 @@ func solve3c(m [3][3]complex128, v [3]complex128) (x [3]complex128, ok bool) {
 	}
 	return x, true
 }
+
+// twoPoleSeed places two lines of azimuth az at once, without knowing the background:
+// poleSeed's fit of the field across the lines in the vertical plane across them, with
+// two poles. In poleSeed's complex terms the field of two lines and a uniform
+// background is
+//
+//	G = c1 / (w - q1) + c2 / (w - q2) + b,
+//
+// and multiplied by (w - q1)(w - q2) = w^2 - S w + P,
+//
+//	G w^2 = S G w - P G + b w^2 + e1 w + e0
+//
+// is linear in S, P, b, e1 and e0: one complex least-squares solve of five unknowns,
+// and the lines' crossings q1 and q2 are the roots of w^2 - S w + P (rational
+// approximation by linearised least squares). The poles are placed wherever the field
+// puts them, one above the other as readily as side by side, which splitting one
+// fitted line does not. Each equation is weighted by 1/|w^2 - S w + P|^2 at the
+// previous solve, as in poleSeed (poleRounds solves; the iteration of Sanathanan and
+// Koerner, IEEE Trans. Automatic Control 8(1):56-58, 1963). For noise-free readings
+// of two lines the poles are exact (TestTwoPoleSeedExact); a nearly coincident pair
+// of opposite currents is a line dipole, whose poles' centre the readings fix but
+// whose direction from one pole to the other they hardly do (see stackedStarts). ok
+// is false when a solve is singular or a pole is not finite; a pole above the
+// readings is reflected below them.
+func (sv *survey) twoPoleSeed(a [][3]float64, az float64) (sd [2]seed, ok bool) {
+	nh := [3]float64{math.Cos(az), -math.Sin(az), 0}
+	d0, z0 := dot(sv.centroid, nh), sv.zmean
+	var g2 float64
+	for _, v := range a {
+		h := v[0]*nh[0] + v[1]*nh[1]
+		if m := h*h + v[2]*v[2]; m > g2 {
+			g2 = m
+		}
+	}
+	if !(g2 > 0) || math.IsInf(g2, 0) {
+		return sd, false
+	}
+	gs := 1 / math.Sqrt(g2)
+	// Positions in units of L keep the powers of w of order one.
+	L := math.Max(sv.extent, 0.5)
+	step := 1
+	if n := len(a); n > 2*screenPoints {
+		step = (n + screenPoints - 1) / screenPoints
+	}
+	const nu = 5
+	var S, P complex128
+	for round := range poleRounds {
+		var m [nu][nu]complex128
+		var v [nu]complex128
+		for i := 0; i < len(a); i += step {
+			r, ai := &sv.pts[i], &a[i]
+			w := complex((r[0]*nh[0]+r[1]*nh[1]-d0)/L, (r[2]-z0)/L)
+			g := complex((ai[0]*nh[0]+ai[1]*nh[1])*gs, -ai[2]*gs)
+			wt := 1.0
+			if round > 0 {
+				p := w*w - S*w + P
+				wt = 1 / (real(p)*real(p) + imag(p)*imag(p))
+			}
+			row := [nu]complex128{g * w, -g, w * w, w, 1}
+			t := g * w * w
+			for j := range nu {
+				cj := complex(wt, 0) * cmplx.Conj(row[j])
+				for k := range nu {
+					m[j][k] += cj * row[k]
+				}
+				v[j] += cj * t
+			}
+		}
+		x, ok := solve5c(m, v)
+		if !ok {
+			return sd, false
+		}
+		S, P = x[0], x[1]
+		if cmplx.IsNaN(S) || cmplx.IsInf(S) || cmplx.IsNaN(P) || cmplx.IsInf(P) {
+			return sd, false
+		}
+	}
+	disc := cmplx.Sqrt(S*S - 4*P)
+	for k, q := range [2]complex128{(S + disc) / 2, (S - disc) / 2} {
+		q *= complex(L, 0)
+		if cmplx.IsNaN(q) || cmplx.IsInf(q) {
+			return sd, false
+		}
+		if imag(q)+z0 >= sv.zmin {
+			q = complex(real(q), 2*(sv.zmin-z0)-imag(q))
+		}
+		p := add(sv.centroid, scale(nh, real(q)))
+		sd[k] = seed{e: p[0], n: p[1], az: az, z: imag(q) + z0}
+	}
+	return sd, true
+}
+
+// solve5c solves the 5 x 5 complex system m x = v by Gaussian elimination with
+// partial pivoting; ok is false when a pivot vanishes against the matrix's scale.
+func solve5c(m [5][5]complex128, v [5]complex128) (x [5]complex128, ok bool) {
+	const n = 5
+	var big float64
+	for j := range n {
+		for k := range n {
+			big = math.Max(big, cmplx.Abs(m[j][k]))
+		}
+	}
+	tiny := 1e-13 * big
+	for c := range n {
+		p := c
+		for r := c + 1; r < n; r++ {
+			if cmplx.Abs(m[r][c]) > cmplx.Abs(m[p][c]) {
+				p = r
+			}
+		}
+		if !(cmplx.Abs(m[p][c]) > tiny) {
+			return x, false
+		}
+		m[c], m[p] = m[p], m[c]
+		v[c], v[p] = v[p], v[c]
+		for r := c + 1; r < n; r++ {
+			f := m[r][c] / m[c][c]
+			for k := c; k < n; k++ {
+				m[r][k] -= f * m[c][k]
+			}
+			v[r] -= f * v[c]
+		}
+	}
+	for c := n - 1; c >= 0; c-- {
+		s := v[c]
+		for k := c + 1; k < n; k++ {
+			s -= m[c][k] * x[k]
+		}
+		x[c] = s / m[c][c]
+	}
+	return x, true
+}
+
+// inPhase returns a real anomaly of the readings for twoPoleSeed: for DC the anomaly;
+// for AC the phasors' part along their principal phase (half the argument of the sum
+// of their squares), which keeps the sign of each current of a circuit whose currents
+// are in phase or in antiphase. (anomaly's rotation of each reading makes its largest
+// component positive, which folds the field of a go-and-return pair.)
+func (sv *survey) inPhase() [][3]float64 {
+	if sv.nrhs == 1 {
+		return sv.anomaly()
+	}
+	n := len(sv.pts)
+	var s2 complex128
+	for i := range 3 * n {
+		c := complex(sv.y[2*i], sv.y[2*i+1])
+		s2 += c * c
+	}
+	rot := cmplx.Rect(1, -cmplx.Phase(s2)/2)
+	a := sv.scr.take3(n)
+	for i := range n {
+		for j := range 3 {
+			a[i][j] = real(complex(sv.y[(3*i+j)*2], sv.y[(3*i+j)*2+1]) * rot)
+		}
+	}
+	return a
+}
