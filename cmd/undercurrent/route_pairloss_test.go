@@ -17,7 +17,9 @@ import (
 // traverse, so the change spreads over several traverses; on routes of
 // seven to nine traverses the between-station scatter was estimated from
 // that spread step itself (0.36 A against fit sigmas of 0.004-0.03 A) and
-// a 3 A loss was not reported at all (inverse/route/stepscatter.go).
+// the 3 A loss was not reported on seed 1 of the DC circuit below (found
+// on seeds 2 and 3 at ± 0.44 A) nor on any seed of the AC one
+// (inverse/route/stepscatter.go).
 
 // pairLossText is the invented Rookery Bank DC circuit: cores 0.3 m apart
 // at 1.0 m, the go core carrying 10 A to north 27.5 m and 7 A beyond it
