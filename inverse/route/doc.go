@@ -86,7 +86,10 @@
 // and the sizes reported too. On a short route (7 to 15 usable stations)
 // tau is taken only when a test at 1% finds scatter beyond the fits'
 // sigmas, and is then widened for the few intervals it is estimated from
-// (Student's t; Route.ScatterWidening); shorter routes take none. A run whose levels either side (below) do
+// (Student's t; Route.ScatterWidening); shorter routes take none. When one
+// step, fitted with its transition, explains that excess (an F test at 1%),
+// the scatter is taken about the step instead (stepscatter.go): a step spread
+// over several stations is not scatter. A run whose levels either side (below) do
 // not differ by k sigma is not reported: one or two stations off, not
 // current leaving.
 //

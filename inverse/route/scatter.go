@@ -89,7 +89,15 @@ func modelScatter(u []*Placed, set *Settings) (tau, widen float64) {
 		}
 	}
 	if m < minScatterIntervals {
-		return shortScatter(dI, dx, s, set.stepK())
+		tau, widen = shortScatter(dI, dx, s, set.stepK())
+		// The excess may be a step spread over several stations rather
+		// than scatter: then it is taken about the step (stepscatter.go).
+		if tau > 0 {
+			if t1, w1, ok := stepScatter(u, tau/widen, set.stepK()); ok && t1 < tau {
+				return t1, w1
+			}
+		}
+		return tau, widen
 	}
 	// MAD is robust to the few intervals that hold real steps or
 	// anomalies; the trend leaves them out only as the step test's does.
