@@ -181,11 +181,17 @@ func (f *fitter) run() (*Result, error) {
 			continue
 		}
 		if sc.Rejected != "" {
-			if weak >= 0 && best != nil && len(best.sp.geom) == k-1 && !f.atNoise(best.sp, best.rss) {
+			if weak >= 0 && best != nil && len(best.sp.geom) < k && !f.atNoise(best.sp, best.rss) {
 				// Refused for a line whose current the data do not resolve,
 				// after a count that misses the noise: the count's lines less
 				// one may fit better than the fit accepted (see dropLines).
-				if r, rs, ok := f.dropLines(c, bestScore, accepted[k-2]); ok {
+				// Past counts passed over (undetermined angles), the guard's
+				// base is the fit accepted.
+				base, ok := accepted[k-2]
+				if !ok {
+					base = bestScore
+				}
+				if r, rs, ok := f.dropLines(c, bestScore, base); ok {
 					best, bestScore = r, rs.crit
 					scores = rescore(scores, rs.sc)
 				}
