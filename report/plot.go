@@ -677,9 +677,10 @@ func labelAt(x, y float64, text string, b ptBox, scale float64) markLabel {
 // route's first station: behind it (against the arrow) where there is room, else on
 // the side of the route away from the groups' labels (side, as
 // labelSide), else on theirs, else at a corner (behind first, away from
-// the groups' labels first), keeping clear of avoid
+// the groups' labels first), beyond the first group's readings (its
+// traverse) in each of these directions, keeping clear of avoid
 // and inside area; ok is false when there is no such place.
-func startLabel(key string, at, dir [2]float64, side, scale float64, st text.Style, avoid []ptBox, area ptBox) (markLabel, ptBox, bool) {
+func startLabel(key string, at, dir [2]float64, readings [][3]float64, side, scale float64, st text.Style, avoid []ptBox, area ptBox) (markLabel, ptBox, bool) {
 	texts := []string{"chainage 0"}
 	if key != "" {
 		texts = []string{key + ", chainage 0", "chainage 0"}
@@ -698,14 +699,20 @@ func startLabel(key string, at, dir [2]float64, side, scale float64, st text.Sty
 		var cands []ptBox
 		for _, more := range []float64{0, h} {
 			for _, n := range dirs {
-				cands = append(cands, labelBeyond(p, n, w, h, gap+more))
-			}
-		}
-		// Above and below, flush with the ring's left or right, where a
-		// centred label would leave the plot.
-		for _, y0 := range []float64{p[1] + gap, p[1] - gap - h, p[1] + gap + h, p[1] - gap - 2*h} {
-			for _, x0 := range []float64{p[0] - startRing, p[0] + startRing - w} {
-				cands = append(cands, ptBox{x0, y0, x0 + w, y0 + h})
+				// Beyond the first traverse's readings that way; above
+				// or below, also flush with the ring's left or right,
+				// where a centred label would leave the plot.
+				reach := 0.0
+				for _, q := range readings {
+					reach = math.Max(reach, ((q[0]-at[0])*n[0]+(q[1]-at[1])*n[1])/scale)
+				}
+				b := labelBeyond(p, n, w, h, math.Max(gap, reach+groupLabelGap)+more)
+				cands = append(cands, b)
+				if math.Abs(n[1]) > 0.7 {
+					for _, x0 := range []float64{p[0] - startRing, p[0] + startRing - w} {
+						cands = append(cands, ptBox{x0, b.y0, x0 + w, b.y1})
+					}
+				}
 			}
 		}
 		for _, b := range cands {
@@ -951,7 +958,15 @@ func layOutPlan(d *Document, xr, yr [2]float64, side vg.Length) planLayout {
 	lay.findings, texts, lay.marks = placeFindingLabels(d.Findings, scale, lay.st, start)
 	lay.marks = append(lay.marks, start...)
 	if hasStart {
-		if l, b, ok := startLabel(d.Route.Stations[0].Key, at, dir, labelSide(d), scale, lay.st, append(lay.marks, texts...), lay.area); ok {
+		first := d.Route.Stations[0].Key
+		var readings [][3]float64
+		for _, g := range d.Groups {
+			if g.Key == first && g.Profile != nil {
+				readings = g.Profile.Positions
+				break
+			}
+		}
+		if l, b, ok := startLabel(first, at, dir, readings, labelSide(d), scale, lay.st, append(lay.marks, texts...), lay.area); ok {
 			lay.start = []markLabel{l}
 			texts = append(texts, b)
 		}
