@@ -97,6 +97,11 @@ type findingRow struct {
 type groupRow struct {
 	Key, Chainage, RMS, Points, Status    string
 	Current, Phase, Depth, Cover, Azimuth []string
+	// Position is each source's position (the point of the conductor
+	// nearest the centre of the group's readings, point_m in the result
+	// document): WGS84 latitude and longitude, signed decimal degrees,
+	// when the survey is geo-referenced, else east and north in metres.
+	Position []string
 	// Conductor numbers each source when further conductors are followed
 	// along the route: 1 for the first, the track's number, or "–". A
 	// further conductor's number is followed by its own chainage in
@@ -390,6 +395,19 @@ func (v *view) groupRow(g *Group) groupRow {
 	}
 	var cur, ph, dep, cov, az []string
 	for i, s := range g.Sources {
+		at := s.Point
+		if p := g.Pair; p != nil && (i == p.Sources[0] || i == p.Sources[1]) {
+			// An unresolved pair's lines are not placed; its centre is.
+			at = p.Point
+		}
+		switch lon, lat, geo := v.D.wgs84(at); {
+		case g.Pair != nil && i == g.Pair.Sources[1]:
+			r.Position = append(r.Position, "–")
+		case geo:
+			r.Position = append(r.Position, fix(lat, 7)+", "+fix(lon, 7))
+		default:
+			r.Position = append(r.Position, fix(at[0], 2)+", "+fix(at[1], 2))
+		}
 		if len(v.D.Conductors) > 0 {
 			c := "–"
 			switch {
@@ -593,6 +611,9 @@ func (v *view) summarise() {
 			line += fmt.Sprintf(", %d of them soundly (see the findings for the others)", sound)
 		}
 		v.Headline = append(v.Headline, line+".")
+		if z := ChainageZero(d); z != "" {
+			v.Headline = append(v.Headline, z)
+		}
 		if len(used) > 0 {
 			a, b := used[0], used[len(used)-1]
 			what := "Current"
@@ -720,6 +741,40 @@ func (v *view) summarise() {
 	if ok < len(d.Groups) {
 		v.HowSure = strings.TrimSpace(v.HowSure + fmt.Sprintf(" %d of %d fits failed and are not used.", len(d.Groups)-ok, len(d.Groups)))
 	}
+}
+
+// ChainageZero says in a sentence where chainage 0 is on the ground and
+// which way chainage runs: the route's first station (the fitted
+// conductor's crossing of the first traverse along it), its position in
+// the local frame and in WGS84 when the survey is geo-referenced, the
+// group chainage increases towards, and the bearing it sets off on. A
+// crew measuring from its own pegs must add their distance to the first
+// traverse. It is empty without a route of two stations or more.
+func ChainageZero(d *Document) string {
+	_, dir, ok := routeStart(d)
+	if !ok {
+		return ""
+	}
+	r := d.Route
+	first, last := r.Stations[0], r.Stations[len(r.Stations)-1]
+	p := first.Point
+	where := en(p)
+	if lon, lat, ok := d.wgs84(p); ok {
+		where += " (" + latLon(lat, lon, 6) + ")"
+	}
+	bearing := math.Mod(math.Atan2(dir[0], dir[1])*180/math.Pi+360, 360)
+	return fmt.Sprintf("Chainage 0 is where the fitted conductor crosses the first traverse along the route, %s, at %s; "+
+		"chainage increases from there towards %s, setting off %.0f° from north (%s), "+
+		"and is measured along the fitted route, not from the survey's pegs or marks.",
+		first.Key, where, last.Key, bearing, compassPoint(bearing))
+}
+
+// compassPoint names the nearest of the eight principal points of the
+// compass to a bearing in degrees from north: "north-east".
+func compassPoint(bearing float64) string {
+	names := [8]string{"north", "north-east", "east", "south-east", "south", "south-west", "west", "north-west"}
+	k := int(math.Floor(math.Mod(bearing+22.5+360, 360)/45)) % 8
+	return "about " + names[k]
 }
 
 // PairNetSentence says what the route's current is when conductor 1 is a

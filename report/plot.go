@@ -410,6 +410,11 @@ func planPlot(d *Document, side vg.Length) (*plot.Plot, error) {
 		}
 		p.Legend.Add(fmt.Sprintf("conductor %d", t.Number), l, s)
 	}
+	if at, dir, ok := routeStart(d); ok {
+		m := chainageStart{at: at, dir: dir}
+		p.Add(m)
+		p.Legend.Add("chainage 0, increasing along the arrow", m)
+	}
 	if err := addFindingMarks(p, d, side); err != nil {
 		return nil, err
 	}
@@ -459,6 +464,32 @@ const (
 	markShare  = 10
 )
 
+// ptBox is a rectangle on the plan view in points, at the scale its
+// labels are placed with: lower left (x0, y0) to upper right (x1, y1).
+type ptBox struct{ x0, y0, x1, y1 float64 }
+
+func (a ptBox) overlaps(b ptBox) bool {
+	return a.x0 < b.x1 && b.x0 < a.x1 && a.y0 < b.y1 && b.y0 < a.y1
+}
+
+// grow returns a widened by m points on every side.
+func (a ptBox) grow(m float64) ptBox { return ptBox{a.x0 - m, a.y0 - m, a.x1 + m, a.y1 + m} }
+
+// within reports whether a lies inside b.
+func (a ptBox) within(b ptBox) bool {
+	return a.x0 >= b.x0 && a.y0 >= b.y0 && a.x1 <= b.x1 && a.y1 <= b.y1
+}
+
+// hitsAny reports whether b overlaps any of the boxes avoid.
+func hitsAny(b ptBox, avoid []ptBox) bool {
+	for _, q := range avoid {
+		if b.overlaps(q) {
+			return true
+		}
+	}
+	return false
+}
+
 // findingLabels numbers the findings for the plan view, at scale metres
 // per point, with text style st. Findings are taken most pressing first
 // (their order in the document); one whose mark lies within markShare
@@ -469,6 +500,15 @@ const (
 // further up and down, that overlaps neither a label placed before it
 // nor any finding's mark.
 func findingLabels(fs []Finding, scale float64, st text.Style) []markLabel {
+	out, _, _ := placeFindingLabels(fs, scale, st, nil)
+	return out
+}
+
+// placeFindingLabels is findingLabels keeping clear of the boxes avoid
+// too, where it can (the chainage-0 mark). It returns the labels, and the
+// boxes, points, of the labels and of every finding's mark, which the
+// plan's other labels keep clear of.
+func placeFindingLabels(fs []Finding, scale float64, st text.Style, avoid []ptBox) (labels []markLabel, texts, marks []ptBox) {
 	var out []markLabel
 	var nums [][]string
 	for i, f := range fs {
@@ -485,51 +525,368 @@ func findingLabels(fs []Finding, scale float64, st text.Style) []markLabel {
 			nums = append(nums, []string{strconv.Itoa(i + 1)})
 		}
 	}
-	type box struct{ x0, y0, x1, y1 float64 }
-	overlaps := func(a, b box) bool { return a.x0 < b.x1 && b.x0 < a.x1 && a.y0 < b.y1 && b.y0 < a.y1 }
 	pt := func(l markLabel) (float64, float64) { return l.x / scale, l.y / scale }
-	var placed []box
+	r, g := float64(markRadius), float64(markGap)
+	for _, f := range fs {
+		mx, my := f.Position[0]/scale, f.Position[1]/scale
+		marks = append(marks, ptBox{mx - r, my - r, mx + r, my + r})
+	}
+	var placed []ptBox
 	for k := range out {
 		out[k].text = strings.Join(nums[k], ",")
 		w, h := float64(st.Width(out[k].text)), float64(st.Height(out[k].text))
 		px, py := pt(out[k])
-		r, g := float64(markRadius), float64(markGap)
 		cands := [][2]float64{{r + g, g}, {r + g, -g - h}, {-r - g - w, g}, {-r - g - w, -g - h}}
 		for n := 1; n <= 2*len(out)+2; n++ {
 			cands = append(cands, [2]float64{r + g, g + float64(n)*h}, [2]float64{r + g, -g - h - float64(n)*h})
 		}
-		choice := cands[0]
-	search:
-		for _, c := range cands {
-			b := box{px + c[0], py + c[1], px + c[0] + w, py + c[1] + h}
-			for _, q := range placed {
-				if overlaps(b, q) {
-					continue search
+		// The first place clear of the other labels and the marks, and
+		// of avoid too when there is one.
+		choice, found := cands[0], false
+		for _, strict := range []bool{true, false} {
+			for _, c := range cands {
+				b := ptBox{px + c[0], py + c[1], px + c[0] + w, py + c[1] + h}
+				if hitsAny(b, placed) || hitsAny(b, marks) || strict && hitsAny(b, avoid) {
+					continue
 				}
+				choice, found = c, true
+				break
 			}
-			for _, f := range fs {
-				mx, my := f.Position[0]/scale, f.Position[1]/scale
-				if overlaps(b, box{mx - r, my - r, mx + r, my + r}) {
-					continue search
-				}
+			if found {
+				break
 			}
-			choice = c
-			break
 		}
 		out[k].offset = vg.Point{X: vg.Length(choice[0]), Y: vg.Length(choice[1])}
-		placed = append(placed, box{px + choice[0], py + choice[1], px + choice[0] + w, py + choice[1] + h})
+		placed = append(placed, ptBox{px + choice[0], py + choice[1], px + choice[0] + w, py + choice[1] + h})
+	}
+	return out, placed, marks
+}
+
+// The chainage-0 mark on the plan view, points: the radius of the ring
+// round the route's first station, and the length of the arrow from it
+// along increasing chainage, of its head, and the head's half width.
+const (
+	startRing = 5.0
+	arrowLen  = 32.0
+	arrowHead = 8.0
+	arrowHalf = 4.0
+)
+
+// chainageStart marks chainage 0 on the plan view: a ring round the
+// route's first station, at (in metres), and an arrow from it towards
+// increasing chainage, along the unit vector dir. It is drawn in points,
+// so that it reads the same at every scale, in ink over a white halo so
+// that it shows on the route's line.
+type chainageStart struct {
+	at, dir [2]float64
+}
+
+// Plot implements plot.Plotter.
+func (c chainageStart) Plot(dc draw.Canvas, plt *plot.Plot) {
+	trX, trY := plt.Transforms(&dc)
+	p := vg.Point{X: trX(c.at[0]), Y: trY(c.at[1])}
+	q := vg.Point{X: trX(c.at[0] + c.dir[0]), Y: trY(c.at[1] + c.dir[1])}
+	drawStartMark(&dc, p, q.Sub(p), startRing, arrowLen, arrowHead, arrowHalf)
+}
+
+// Thumbnail implements plot.Thumbnailer: the mark in small, for the
+// legend.
+func (chainageStart) Thumbnail(c *draw.Canvas) {
+	y := (c.Min.Y + c.Max.Y) / 2
+	w := c.Max.X - c.Min.X
+	drawStartMark(c, vg.Point{X: c.Min.X + 3, Y: y}, vg.Point{X: 1}, 2.5, w-3, 5, 2.6)
+}
+
+// drawStartMark draws a ring of radius ring at p and an arrow from it of
+// length long, with a head head long and twice half wide, along d.
+func drawStartMark(c *draw.Canvas, p, d vg.Point, ring, long, head, half vg.Length) {
+	n := vg.Length(math.Hypot(float64(d.X), float64(d.Y)))
+	if n == 0 {
+		return
+	}
+	u := vg.Point{X: d.X / n, Y: d.Y / n}
+	perp := vg.Point{X: -u.Y, Y: u.X}
+	from, base, tip := p.Add(u.Scale(ring)), p.Add(u.Scale(long-head)), p.Add(u.Scale(long))
+	headPts := []vg.Point{tip, base.Add(perp.Scale(half)), base.Sub(perp.Scale(half))}
+	white := color.White
+	var circle vg.Path
+	circle.Move(p.Add(vg.Point{X: ring}))
+	circle.Arc(p, ring, 0, 2*math.Pi)
+	circle.Close()
+	for _, sty := range []draw.LineStyle{{Color: white, Width: 3.4}, {Color: colInk, Width: 1.5}} {
+		c.SetLineStyle(sty)
+		c.Stroke(circle)
+		c.StrokeLines(sty, []vg.Point{from, base})
+	}
+	c.StrokeLines(draw.LineStyle{Color: white, Width: 2}, append(headPts, tip))
+	c.FillPolygon(colInk, headPts)
+}
+
+// startBoxes are the boxes, points, that the chainage-0 mark covers at p
+// (points) with unit direction u.
+func startBoxes(p, u [2]float64) []ptBox {
+	r := startRing + 1
+	out := []ptBox{{p[0] - r, p[1] - r, p[0] + r, p[1] + r}}
+	for s := startRing; s <= arrowLen; s += arrowHalf {
+		x, y := p[0]+s*u[0], p[1]+s*u[1]
+		out = append(out, ptBox{x - arrowHalf, y - arrowHalf, x + arrowHalf, y + arrowHalf})
 	}
 	return out
+}
+
+// routeStart is the route's first station (chainage 0) and the unit
+// direction, east and north, from it towards the next station at a
+// distinct place (increasing chainage); ok is false without a route of
+// two stations or more.
+func routeStart(d *Document) (at, dir [2]float64, ok bool) {
+	r := d.Route
+	if r == nil || len(r.Stations) < 2 {
+		return at, dir, false
+	}
+	s0 := r.Stations[0].Point
+	at = [2]float64{s0[0], s0[1]}
+	for _, st := range r.Stations[1:] {
+		dx, dy := st.Point[0]-s0[0], st.Point[1]-s0[1]
+		if n := math.Hypot(dx, dy); n > 1e-6 {
+			return at, [2]float64{dx / n, dy / n}, true
+		}
+	}
+	u := r.Stations[0].Direction
+	if n := math.Hypot(u[0], u[1]); n > 0 {
+		return at, [2]float64{u[0] / n, u[1] / n}, true
+	}
+	return at, dir, false
+}
+
+// labelBeyond is the box of a label w x h points that lies gap points
+// beyond the point p (points) in the unit direction n.
+func labelBeyond(p, n [2]float64, w, h, gap float64) ptBox {
+	reach := gap + math.Abs(n[0])*w/2 + math.Abs(n[1])*h/2
+	cx, cy := p[0]+n[0]*reach, p[1]+n[1]*reach
+	return ptBox{cx - w/2, cy - h/2, cx + w/2, cy + h/2}
+}
+
+// labelAt makes the label text at (x, y) metres drawn in box b (points,
+// at scale metres per point).
+func labelAt(x, y float64, text string, b ptBox, scale float64) markLabel {
+	return markLabel{x: x, y: y, text: text, offset: vg.Point{X: vg.Length(b.x0 - x/scale), Y: vg.Length(b.y0 - y/scale)}}
+}
+
+// startLabel places "chainage 0", after the name of the first group
+// (key) when it has one ("T01, chainage 0"), beside the ring at the
+// route's first station: behind it (against the arrow) where there is room, else on
+// the side of the route away from the groups' labels (side, as
+// labelSide), else on theirs, else at a corner (behind first, away from
+// the groups' labels first), beyond the first group's readings (its
+// traverse) in each of these directions, keeping clear of avoid
+// and inside area; ok is false when there is no such place.
+func startLabel(key string, at, dir [2]float64, readings [][3]float64, side, scale float64, st text.Style, avoid []ptBox, area ptBox) (markLabel, ptBox, bool) {
+	texts := []string{"chainage 0"}
+	if key != "" {
+		texts = []string{key + ", chainage 0", "chainage 0"}
+	}
+	p := [2]float64{at[0] / scale, at[1] / scale}
+	gap := startRing + markGap
+	away := [2]float64{dir[1] * side, -dir[0] * side}
+	mix := func(a, b float64) [2]float64 {
+		x, y := a*dir[0]+b*away[0], a*dir[1]+b*away[1]
+		n := math.Hypot(x, y)
+		return [2]float64{x / n, y / n}
+	}
+	dirs := [][2]float64{mix(-1, 0), mix(0, 1), mix(0, -1), mix(-1, 1), mix(-1, -1), mix(1, 1), mix(1, -1)}
+	for _, txt := range texts {
+		w, h := float64(st.Width(txt)), float64(st.Height(txt))
+		var cands []ptBox
+		for _, more := range []float64{0, h} {
+			for _, n := range dirs {
+				// Beyond the first traverse's readings that way; above
+				// or below, also flush with the ring's left or right,
+				// where a centred label would leave the plot.
+				reach := 0.0
+				for _, q := range readings {
+					reach = math.Max(reach, ((q[0]-at[0])*n[0]+(q[1]-at[1])*n[1])/scale)
+				}
+				b := labelBeyond(p, n, w, h, math.Max(gap, reach+groupLabelGap)+more)
+				cands = append(cands, b)
+				if math.Abs(n[1]) > 0.7 {
+					for _, x0 := range []float64{p[0] - startRing, p[0] + startRing - w} {
+						cands = append(cands, ptBox{x0, b.y0, x0 + w, b.y1})
+					}
+				}
+			}
+		}
+		for _, b := range cands {
+			if b.within(area) && !hitsAny(b, avoid) {
+				return labelAt(at[0], at[1], txt, b, scale), b, true
+			}
+		}
+	}
+	return markLabel{}, ptBox{}, false
+}
+
+// groupLabelGap is the gap, points, between the end of a traverse's
+// readings and its label on the plan view, and groupLabelSpace the least
+// space between a group's label and another label or mark.
+const (
+	groupLabelGap   = 3.0
+	groupLabelMore  = 2 * startRing
+	groupLabelSpace = 9.0
+)
+
+// labelSteps are the steps, in stations, at which groups are labelled
+// along the route: every station, every second, ..., the first that
+// leaves room between their labels.
+var labelSteps = []int{1, 2, 5, 10, 20, 50, 100, 200, 500, 1000}
+
+// groupLabels names the groups on the plan view, at scale metres per
+// point with text style st. Along a route, each label lies just beyond
+// the end of its traverse's readings, on the side of the route away from
+// further conductors (the left, looking along increasing chainage, when
+// there are none), or on the other side where that is taken; every
+// station is labelled when the labels fit, else every Nth from the first
+// (N the least of labelSteps at which neighbouring labels keep
+// groupLabelSpace apart), and the last station too where it fits.
+// Without a route, each group with a name is labelled beside the centre
+// of its readings. Where a label's place is taken it moves a little
+// further out, then to the other side; a label that would still overlap
+// marks (the findings' and the chainage-0 mark), come within
+// groupLabelSpace of texts (the other labels) or another group's label,
+// or leave area is left out. The first station is not labelled when
+// firstNamed (the chainage-0 label names it). It returns the labels and
+// their boxes.
+func groupLabels(d *Document, scale float64, st text.Style, marks, texts []ptBox, area ptBox, firstNamed bool) ([]markLabel, []ptBox) {
+	byKey := map[string]*Group{}
+	for i := range d.Groups {
+		if _, dup := byKey[d.Groups[i].Key]; !dup {
+			byKey[d.Groups[i].Key] = &d.Groups[i]
+		}
+	}
+	readings := func(key string) [][3]float64 {
+		if g := byKey[key]; g != nil && g.Profile != nil {
+			return g.Profile.Positions
+		}
+		return nil
+	}
+	var out []markLabel
+	var boxes []ptBox
+	fits := func(b ptBox) bool {
+		g := b.grow(groupLabelSpace)
+		return b.within(area) && !hitsAny(b, marks) && !hitsAny(g, texts) && !hitsAny(g, boxes)
+	}
+	r := d.Route
+	if r == nil || len(r.Stations) < 2 {
+		named := 0
+		for _, g := range d.Groups {
+			if g.Key != "" {
+				named++
+			}
+		}
+		if named < 2 {
+			return nil, nil
+		}
+		for _, g := range d.Groups {
+			if g.Key == "" {
+				continue
+			}
+			w, h := float64(st.Width(g.Key)), float64(st.Height(g.Key))
+			p := [2]float64{g.Centroid[0] / scale, g.Centroid[1] / scale}
+			for _, n := range [][2]float64{{0, 1}, {0, -1}, {1, 0}, {-1, 0}} {
+				if b := labelBeyond(p, n, w, h, groupLabelGap); fits(b) {
+					out, boxes = append(out, labelAt(g.Centroid[0], g.Centroid[1], g.Key, b, scale)), append(boxes, b)
+					break
+				}
+			}
+		}
+		return out, boxes
+	}
+	side := labelSide(d)
+	// Each station's two places, the preferred side first.
+	type spot struct {
+		box  [4]ptBox // preferred side, further out, other side, further out
+		x, y float64
+	}
+	spots := make([]spot, len(r.Stations))
+	for i, s := range r.Stations {
+		u := [2]float64{s.Direction[0], s.Direction[1]}
+		if n := math.Hypot(u[0], u[1]); n > 0 {
+			u = [2]float64{u[0] / n, u[1] / n}
+		} else {
+			u = [2]float64{1, 0}
+		}
+		w, h := float64(st.Width(s.Key)), float64(st.Height(s.Key))
+		sp := spot{x: s.Point[0], y: s.Point[1]}
+		for k, sg := range []float64{side, -side} {
+			n := [2]float64{-u[1] * sg, u[0] * sg}
+			reach := 0.0
+			for _, q := range readings(s.Key) {
+				reach = math.Max(reach, (q[0]-s.Point[0])*n[0]+(q[1]-s.Point[1])*n[1])
+			}
+			end := [2]float64{(s.Point[0] + reach*n[0]) / scale, (s.Point[1] + reach*n[1]) / scale}
+			sp.box[2*k] = labelBeyond(end, n, w, h, groupLabelGap)
+			sp.box[2*k+1] = labelBeyond(end, n, w, h, groupLabelGap+groupLabelMore)
+		}
+		spots[i] = sp
+	}
+	step := labelSteps[len(labelSteps)-1]
+	for _, n := range labelSteps {
+		clear := true
+		for i := n; i < len(spots) && clear; i += n {
+			clear = !spots[i].box[0].overlaps(spots[i-n].box[0].grow(groupLabelSpace))
+		}
+		if clear {
+			step = n
+			break
+		}
+	}
+	var pick []int
+	for i := 0; i < len(spots); i += step {
+		pick = append(pick, i)
+	}
+	if last := len(spots) - 1; pick[len(pick)-1] != last {
+		pick = append(pick, last)
+	}
+	for _, i := range pick {
+		if i == 0 && firstNamed {
+			continue
+		}
+		for _, b := range spots[i].box {
+			if fits(b) {
+				out = append(out, labelAt(spots[i].x, spots[i].y, r.Stations[i].Key, b, scale))
+				boxes = append(boxes, b)
+				break
+			}
+		}
+	}
+	return out, boxes
+}
+
+// labelSide is the side of the route the plan view labels its groups
+// on, looking along increasing chainage: away from the further
+// conductors, the right (-1) when they all lie to the left, else the left
+// (+1).
+func labelSide(d *Document) float64 {
+	left, right := 0, 0
+	for _, t := range d.Conductors {
+		switch {
+		case t.Offset < 0:
+			left++
+		case t.Offset > 0:
+			right++
+		}
+	}
+	if left > 0 && right == 0 {
+		return -1
+	}
+	return 1
 }
 
 // addFindingMarks numbers the findings on the plan view: a triangle
 // coloured by severity at each, drawn least pressing first so that a
 // warning's is never hidden under a note's at the same place, and the
-// labels of findingLabels over them all.
+// labels of findingLabels over them all. It then names chainage 0 beside
+// its mark (chainageStart, which planPlot draws) and the groups
+// (groupLabels), each clear of the findings' marks and labels.
 func addFindingMarks(p *plot.Plot, d *Document, side vg.Length) error {
-	if len(d.Findings) == 0 {
-		return nil
-	}
 	order := make([]int, len(d.Findings))
 	for i := range order {
 		order[i] = i
@@ -543,19 +900,79 @@ func addFindingMarks(p *plot.Plot, d *Document, side vg.Length) error {
 			return err
 		}
 	}
-	// The scale squareUp will give the plan: the larger extent, widened.
-	ext := math.Max(p.X.Max-p.X.Min, p.Y.Max-p.Y.Min)*1.08 + 1
-	st := text.Style{Font: font.Font{Variant: "Sans", Size: vg.Points(9)}, Color: colInk, Handler: plot.DefaultTextHandler}
-	for _, l := range findingLabels(d.Findings, ext/float64(side-planMargin), st) {
-		lab, err := plotter.NewLabels(plotter.XYLabels{XYs: plotter.XYs{{X: l.x, Y: l.y}}, Labels: []string{l.text}})
-		if err != nil {
-			return err
+	lay := layOutPlan(d, [2]float64{p.X.Min, p.X.Max}, [2]float64{p.Y.Min, p.Y.Max}, side)
+	for _, set := range []struct {
+		ls []markLabel
+		st text.Style
+	}{{lay.findings, lay.st}, {lay.start, lay.st}, {lay.groups, lay.gst}} {
+		for _, l := range set.ls {
+			lab, err := plotter.NewLabels(plotter.XYLabels{XYs: plotter.XYs{{X: l.x, Y: l.y}}, Labels: []string{l.text}})
+			if err != nil {
+				return err
+			}
+			lab.TextStyle[0] = set.st
+			lab.Offset = l.offset
+			p.Add(lab)
 		}
-		lab.TextStyle[0] = st
-		lab.Offset = l.offset
-		p.Add(lab)
 	}
 	return nil
+}
+
+// planLayout is where the plan view's labels go: the findings' numbers,
+// "chainage 0" (none or one) and the groups' names, in text styles st
+// (findings, chainage 0) and gst (groups), placed at scale metres per
+// point inside area (points). marks are the boxes of the findings' marks
+// and the chainage-0 mark.
+type planLayout struct {
+	scale                   float64
+	area                    ptBox
+	st, gst                 text.Style
+	findings, start, groups []markLabel
+	marks                   []ptBox
+}
+
+// layOutPlan places the labels of the plan view of d, whose data span
+// xr east and yr north (metres) before squareUp, drawn side long: the
+// findings' numbers first (placeFindingLabels, clear of the chainage-0
+// mark where they can be), then "chainage 0" (startLabel), then the
+// groups' names (groupLabels), each clear of those before it.
+func layOutPlan(d *Document, xr, yr [2]float64, side vg.Length) planLayout {
+	// The scale squareUp will give the plan: the larger extent, widened,
+	// and the square it will show, in points.
+	ext := math.Max(xr[1]-xr[0], yr[1]-yr[0])*1.08 + 1
+	scale := ext / float64(side-planMargin)
+	cx, cy := (xr[0]+xr[1])/2, (yr[0]+yr[1])/2
+	lay := planLayout{
+		scale: scale,
+		area:  ptBox{(cx - ext/2) / scale, (cy - ext/2) / scale, (cx + ext/2) / scale, (cy + ext/2) / scale},
+		st:    text.Style{Font: font.Font{Variant: "Sans", Size: vg.Points(9)}, Color: colInk, Handler: plot.DefaultTextHandler},
+	}
+	lay.gst = lay.st
+	lay.gst.Color = colInfo
+	var start []ptBox
+	at, dir, hasStart := routeStart(d)
+	if hasStart {
+		start = startBoxes([2]float64{at[0] / scale, at[1] / scale}, dir)
+	}
+	var texts []ptBox
+	lay.findings, texts, lay.marks = placeFindingLabels(d.Findings, scale, lay.st, start)
+	lay.marks = append(lay.marks, start...)
+	if hasStart {
+		first := d.Route.Stations[0].Key
+		var readings [][3]float64
+		for _, g := range d.Groups {
+			if g.Key == first && g.Profile != nil {
+				readings = g.Profile.Positions
+				break
+			}
+		}
+		if l, b, ok := startLabel(first, at, dir, readings, labelSide(d), scale, lay.st, append(lay.marks, texts...), lay.area); ok {
+			lay.start = []markLabel{l}
+			texts = append(texts, b)
+		}
+	}
+	lay.groups, _ = groupLabels(d, scale, lay.gst, lay.marks, texts, lay.area, len(lay.start) > 0)
+	return lay
 }
 
 func (d xy) toXYs() plotter.XYs {

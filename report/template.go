@@ -77,7 +77,7 @@ footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rul
   table, .cautions { break-inside: auto; }
   tr { break-inside: avoid; page-break-inside: avoid; }
   .wide { overflow: visible; }
-  table.groups { font-size: 8pt; }
+  table.groups { font-size: 7.5pt; }
   /* A printer may drop backgrounds whatever the page asks: the badges
      then read as dark text in a box, the warning's box thicker. */
   .sev, .sev-warning, .sev-caution, .sev-info { color: var(--ink); background: none; border: 1.5px solid var(--ink); }
@@ -118,7 +118,7 @@ footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rul
 <section>
 <h2>Plan view</h2>
 <figure class="plan">{{.Plan}}
-<figcaption>Readings (grey), fitted conductor{{if .D.Route}} and route (blue){{end}}{{if .Tracks}}, further conductors followed along the route (dark grey, each with its own line pattern, named in the legend){{end}}{{if .Findings}}, findings numbered as in the summary (triangles coloured by severity){{end}}. Coordinates: {{.FrameText}}.</figcaption>
+<figcaption>Readings (grey), fitted conductor{{if .D.Route}} and route (blue){{end}}{{if .Tracks}}, further conductors followed along the route (dark grey, each with its own line pattern, named in the legend){{end}}{{if .Findings}}, findings numbered as in the summary (triangles coloured by severity){{end}}{{if .Current}}; groups named in grey beside their readings (every few where they crowd), and chainage 0 ringed, with an arrow along increasing chainage{{end}}. Coordinates: {{.FrameText}}.</figcaption>
 </figure>
 </section>
 
@@ -154,12 +154,12 @@ footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rul
 <section>
 <h2>Every group</h2>
 <div class="wide"><table class="groups">
-<thead><tr><th>Group</th><th>Chainage (m)</th>{{if .D.Conductors}}<th>Conductor</th>{{end}}<th>Current (A)</th>{{if eq .D.Signal.Mode "ac"}}<th>Phase (°)</th>{{end}}<th>Depth (m)</th><th>Cover (m){{if .CoverNA}}*{{end}}</th><th>Azimuth (°)</th><th>RMS (nT)</th><th>Readings</th><th>Fit</th></tr></thead>
+<thead><tr><th>Group</th><th>Chainage (m)</th>{{if .D.Conductors}}<th>Conductor</th>{{end}}<th>Current (A)</th>{{if eq .D.Signal.Mode "ac"}}<th>Phase (°)</th>{{end}}<th>Depth (m)</th><th>Cover (m){{if .CoverNA}}*{{end}}</th><th>{{if .D.Frame.Origin}}Lat, lon (°){{else}}E, N (m){{end}}</th><th>Azimuth (°)</th><th>RMS (nT)</th><th>Readings</th><th>Fit</th></tr></thead>
 <tbody>
-{{$ac := eq .D.Signal.Mode "ac"}}{{$tracks := .D.Conductors}}{{range .Groups}}<tr{{if .Bad}} class="bad"{{end}}><td>{{.Key}}</td><td class="num">{{.Chainage}}</td>{{if $tracks}}<td class="num">{{range $i, $v := .Conductor}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{end}}<td class="num">{{range $i, $v := .Current}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{if $ac}}<td class="num">{{range $i, $v := .Phase}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{end}}<td class="num">{{range $i, $v := .Depth}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td><td class="num">{{range $i, $v := .Cover}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td><td class="num">{{range $i, $v := .Azimuth}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td><td class="num">{{.RMS}}</td><td class="num">{{.Points}}</td><td>{{.Status}}</td></tr>
+{{$ac := eq .D.Signal.Mode "ac"}}{{$tracks := .D.Conductors}}{{range .Groups}}<tr{{if .Bad}} class="bad"{{end}}><td>{{.Key}}</td><td class="num">{{.Chainage}}</td>{{if $tracks}}<td class="num">{{range $i, $v := .Conductor}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{end}}<td class="num">{{range $i, $v := .Current}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{if $ac}}<td class="num">{{range $i, $v := .Phase}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{end}}<td class="num">{{range $i, $v := .Depth}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td><td class="num">{{range $i, $v := .Cover}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td><td class="num">{{range $i, $v := .Position}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td><td class="num">{{range $i, $v := .Azimuth}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td><td class="num">{{.RMS}}</td><td class="num">{{.Points}}</td><td>{{.Status}}</td></tr>
 {{end}}</tbody>
 </table></div>
-<p class="values">One line per fitted conductor, strongest first.{{if .D.Conductors}} Conductor: 1 for the one the route follows, 2, 3, ... for the further conductors followed along it, – for a source in no track. Chainage is along the route (conductor 1); a further conductor's own chainage, measured along it from its first station as its findings give it, follows its number in brackets where it differs.{{end}} Uncertainties are one standard deviation from the reading noise only; they do not count the error of the model, which is often many times larger{{with .Scatter}} (see the realistic spread in the summary){{end}}. Depth is {{.DepthRef}}.{{if .CoverNA}} *Cover n/a: the sensors' height above the ground was not given, so the depth of cover below the ground cannot be computed (give it with --sensor-height, or the ground level with --reference-z).{{end}}</p>
+<p class="values">One line per fitted conductor, strongest first. {{if .D.Frame.Origin}}Lat, lon{{else}}E, N{{end}}: where each conductor passes closest to the centre of its group's readings (for an object, where it lies; for a pair of lines not told apart, the pair's centre){{if .D.Frame.Origin}}, WGS84 latitude and longitude in decimal degrees, negative south and west (results.csv and results.json give the local east and north too){{else}}, local east and north in metres as on the plan view{{end}}.{{if .D.Conductors}} Conductor: 1 for the one the route follows, 2, 3, ... for the further conductors followed along it, – for a source in no track. Chainage is along the route (conductor 1); a further conductor's own chainage, measured along it from its first station as its findings give it, follows its number in brackets where it differs.{{end}} Uncertainties are one standard deviation from the reading noise only; they do not count the error of the model, which is often many times larger{{with .Scatter}} (see the realistic spread in the summary){{end}}. Depth is {{.DepthRef}}.{{if .CoverNA}} *Cover n/a: the sensors' height above the ground was not given, so the depth of cover below the ground cannot be computed (give it with --sensor-height, or the ground level with --reference-z).{{end}}</p>
 {{if .FitNotes}}<h3>Notes from the fits</h3>
 <ul class="values">
 {{range .FitNotes}}<li>{{.}}</li>
