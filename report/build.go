@@ -536,18 +536,6 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute boo
 		g.Problem = "the fit did not converge (" + g.Status + ")"
 	default:
 		g.Problem = ambiguity(res.Criteria)
-		if g.Problem == "" {
-			// More lines fit the readings much better but did not resolve
-			// every current (two cables one above the other, fitted as one
-			// line 30 sigma off): the line reported does not describe the
-			// field, whatever its sigmas say.
-			for _, n := range res.Notes {
-				if strings.HasPrefix(n, inverse.UnresolvedLinesNote) {
-					g.Problem = n
-					break
-				}
-			}
-		}
 	}
 	if f.Dipole && g.Problem == "" && f.object == nil {
 		// The caller's verdict, without a fitted object to show for it.
