@@ -432,7 +432,11 @@ func DemodulateColumns(c *Columns, set *DemodSettings) (*DemodResult, error) {
 	if N <= p+1 {
 		return nil, fmt.Errorf("calibrate: demodulate: a %g s window holds %d samples at %g Hz sampling, too few for %d parameters", ds.Window, N, fs, p)
 	}
-	if cyc := ds.Freq * float64(N) * dt; cyc < ds.MinCycles {
+	// The interval measured from absolute Unix times is off by parts per
+	// million (their float64 rounding), so a window of just MinCycles
+	// cycles may count a hair fewer: a window short by under 0.005 cycles
+	// (what %.2f cannot show) is as good, and is not warned about.
+	if cyc := ds.Freq * float64(N) * dt; cyc < ds.MinCycles-0.005 {
 		res.Warnings = append(res.Warnings, fmt.Sprintf("a %g s window holds only %.2f cycles of %g Hz (want at least %g): amplitudes leak from the Earth's field and drift", ds.Window, cyc, ds.Freq, ds.MinCycles))
 	}
 

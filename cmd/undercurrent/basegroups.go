@@ -93,6 +93,12 @@ func checkBaseGroups(path string, opts []ingest.Option, base *ingest.Samples) (s
 // every row, exactly or as rounded by an export.
 const minSurveyShare = 0.1
 
+// manyShared says whether same readings, of a log of n, make it hold
+// another log's readings: 10 or more, and at least minSurveyShare of n.
+func manyShared(same, n int) bool {
+	return same >= 10 && float64(same) >= minSurveyShare*float64(n)
+}
+
 // surveyMatchNT is the agreement, on each axis, of a base reading and a
 // survey reading at the same time that counts them as one reading: an
 // export of the survey log rounded to 0.01 or 0.1 nT is caught, and no
@@ -107,59 +113,11 @@ const surveyMatchNT = 0.5
 // diurnal variation. A base reading is the survey's when a survey
 // reading at the same time (within half the base log's median interval,
 // for times rounded by an export) agrees with it to surveyMatchNT on all
-// three axes.
+// three axes. Positions are not compared: a base log has none, or one
+// fixed position.
 func checkBaseNotSurvey(basePath string, base *ingest.Samples, path string, s *ingest.Samples) error {
-	if base.NoTime || base.Len() == 0 || s.NoTime || len(s.Time) == 0 {
-		return nil
-	}
-	// The base readings in time order (the base log was put in time
-	// order, but its times may hold NaN).
-	var order []int
-	for i, t := range base.Time {
-		if !math.IsNaN(t) {
-			order = append(order, i)
-		}
-	}
-	if len(order) == 0 {
-		return nil
-	}
-	sort.SliceStable(order, func(a, b int) bool { return base.Time[order[a]] < base.Time[order[b]] })
-	tol := 1e-3 // s: a logger's time resolution
-	if len(order) > 1 {
-		steps := make([]float64, 0, len(order)-1)
-		for k := 1; k < len(order); k++ {
-			if d := base.Time[order[k]] - base.Time[order[k-1]]; d > 0 {
-				steps = append(steps, d)
-			}
-		}
-		if len(steps) > 0 {
-			sort.Float64s(steps)
-			tol = math.Max(tol, steps[len(steps)/2]/2)
-		}
-	}
-	near := func(a, b float64) bool { return math.Abs(a-b) <= surveyMatchNT }
-	matched := make([]bool, base.Len())
-	same, first := 0, -1
-	for i := range s.Len() {
-		t := s.Time[i]
-		if math.IsNaN(t) {
-			continue
-		}
-		k := sort.Search(len(order), func(k int) bool { return base.Time[order[k]] >= t-tol })
-		for ; k < len(order) && base.Time[order[k]] <= t+tol; k++ {
-			j := order[k]
-			if matched[j] || !near(base.Bx[j], s.Bx[i]) || !near(base.By[j], s.By[i]) || !near(base.Bz[j], s.Bz[i]) {
-				continue
-			}
-			matched[j] = true
-			same++
-			if first < 0 {
-				first = i
-			}
-			break
-		}
-	}
-	if same < 10 || float64(same) < minSurveyShare*float64(base.Len()) {
+	same, first := sharedReadings(base, s, false)
+	if !manyShared(same, base.Len()) {
 		return nil
 	}
 	return fmt.Errorf("%s: %d of the base log's %d readings are readings of the survey log %s (the same time and field, within %g nT on all three axes, the first at %s): it holds the survey's own readings, and would take the survey's anomaly away as the diurnal variation; the base log is the record of a second magnetometer left in one place during the survey",
@@ -180,4 +138,80 @@ func baseGroupColumn(path string, opts []ingest.Option) string {
 		}
 	}
 	return ingest.ColGroup
+}
+
+// surveyMatchM is the agreement, on each of x, y and z, of the positions
+// of two survey readings at the same time that counts them as one
+// reading (when both logs have positions): an export rounding positions
+// to the centimetre is caught, and two sensors of one cart, or a
+// traverse beside another, are told apart however alike their fields.
+const surveyMatchM = 0.01
+
+// sharedReadings counts the readings of a that are readings of b: a
+// reading of b at the same time (within half a's median interval, for
+// times rounded by an export, and at least a millisecond) agrees with it
+// to surveyMatchNT on all three field axes and, when positions is set,
+// to surveyMatchM on x, y and z. Each reading of a is counted once.
+// first is the index in b of the first reading matched, -1 for none.
+// Logs without times share none.
+func sharedReadings(a, b *ingest.Samples, positions bool) (same, first int) {
+	first = -1
+	if a.NoTime || a.Len() == 0 || b.NoTime || b.Len() == 0 {
+		return 0, -1
+	}
+	positions = positions && a.X != nil && a.Y != nil && a.Z != nil && b.X != nil && b.Y != nil && b.Z != nil
+	// a's readings in time order (a base log was put in time order,
+	// but times may hold NaN, and a survey log read with --time-order
+	// any or per-group is not in order).
+	var order []int
+	for i, t := range a.Time {
+		if !math.IsNaN(t) {
+			order = append(order, i)
+		}
+	}
+	if len(order) == 0 {
+		return 0, -1
+	}
+	sort.SliceStable(order, func(p, q int) bool { return a.Time[order[p]] < a.Time[order[q]] })
+	tol := 1e-3 // s: a logger's time resolution
+	if len(order) > 1 {
+		steps := make([]float64, 0, len(order)-1)
+		for k := 1; k < len(order); k++ {
+			if d := a.Time[order[k]] - a.Time[order[k-1]]; d > 0 {
+				steps = append(steps, d)
+			}
+		}
+		if len(steps) > 0 {
+			sort.Float64s(steps)
+			tol = math.Max(tol, steps[len(steps)/2]/2)
+		}
+	}
+	near := func(u, v, within float64) bool { return math.Abs(u-v) <= within }
+	same1 := func(j, i int) bool {
+		if !near(a.Bx[j], b.Bx[i], surveyMatchNT) || !near(a.By[j], b.By[i], surveyMatchNT) || !near(a.Bz[j], b.Bz[i], surveyMatchNT) {
+			return false
+		}
+		return !positions || near(a.X[j], b.X[i], surveyMatchM) && near(a.Y[j], b.Y[i], surveyMatchM) && near(a.Z[j], b.Z[i], surveyMatchM)
+	}
+	matched := make([]bool, a.Len())
+	for i := range b.Len() {
+		t := b.Time[i]
+		if math.IsNaN(t) {
+			continue
+		}
+		k := sort.Search(len(order), func(k int) bool { return a.Time[order[k]] >= t-tol })
+		for ; k < len(order) && a.Time[order[k]] <= t+tol; k++ {
+			j := order[k]
+			if matched[j] || !same1(j, i) {
+				continue
+			}
+			matched[j] = true
+			same++
+			if first < 0 {
+				first = i
+			}
+			break
+		}
+	}
+	return same, first
 }

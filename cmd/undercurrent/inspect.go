@@ -338,7 +338,10 @@ func inspectOrder(ctx context.Context, path string, opts []ingest.Option, order 
 	if err != nil {
 		return err
 	}
-	if groups == nil && order == ingest.TimeOrderedPerGroup {
+	// per-group without a group column: ingest reads the log as one
+	// stretch that must run forward, and suggesting per-group is no help.
+	noGroup := groups == nil && order == ingest.TimeOrderedPerGroup
+	if noGroup {
 		order = ingest.TimeOrdered // as ingest reads it without a group column
 	}
 	// The rows of each stretch that must run forward: the whole log, or
@@ -407,10 +410,14 @@ func inspectOrder(ctx context.Context, path string, opts []ingest.Option, order 
 	total := ts.Backwards
 	ts.Backwards, ts.Repeated = back, repeated
 	var warn string
-	switch order {
-	case ingest.TimeAnyOrder:
+	switch {
+	case noGroup:
+		if back > 0 {
+			warn = fmt.Sprintf("time: goes backwards %s: --time-order %s asks for time forward within each group, but the log has no group column (map one with --column group=NAME), so it must run forward throughout: convert, locate and calibrate refuse the log (--time-order any allows it); gaps are counted in time order", timesWord(back), flag)
+		}
+	case order == ingest.TimeAnyOrder:
 		warn = fmt.Sprintf("time: goes backwards %s, as --time-order any allows; gaps are counted in time order", timesWord(total))
-	case ingest.TimeOrderedPerGroup:
+	case order == ingest.TimeOrderedPerGroup:
 		switch {
 		case back > 0:
 			warn = fmt.Sprintf("time: goes backwards %s within a group: convert, locate, calibrate and replay refuse it with --time-order per-group (--time-order any allows it); gaps are counted in time order within each group", timesWord(back))

@@ -448,6 +448,10 @@ type survey struct {
 	// document's frame took.
 	geodetic   map[string]bool
 	originFrom string
+	// noOrigin is the first local log without an origin, while no log
+	// with one has been read; logs are the survey logs, in order.
+	noOrigin string
+	logs     []string
 	// windowN are the AC windows' sample counts, and windowSigma their
 	// phasors' noise per axis from the windows' own sine-fit residuals
 	// (calibrate.Window.Sigma), nT.
@@ -594,6 +598,7 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 	if o.groupBy != "" && o.groupBy != ingest.ColGroup {
 		opts = append(opts, ingest.WithColumns(ingest.ColGroup+"="+o.groupBy))
 	}
+	sv.logs = logs
 	if sv.geodetic, err = checkOriginFlag(o, logs, opts); err != nil {
 		return nil, err
 	}
@@ -1456,57 +1461,146 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 // mixed up. A log whose positions are local metres (no latitude and
 // longitude columns) is not placed by --origin: one about an origin of its
 // own other than the --origin given is refused (the results would be about
-// the log's origin while the settings name another), and one without an
-// origin, beside logs that have one, gets a warning.
+// the log's origin while the settings name another). One without an
+// origin, beside logs with latitude and longitude, is refused unless
+// --origin LAT,LON gives the origin they are placed about (then it is
+// taken to be about it, with a warning): by default they are placed about
+// their own first reading, which a log written separately is not about,
+// and its positions came out metres off without a word. One without an
+// origin beside local logs with one gets a warning. Origins are the same
+// within sameOriginDeg and sameOriginM, so that an origin printed here,
+// given back with --origin, is the same.
 func (sv *survey) sameOrigin(o *locateOptions, s *ingest.Samples) (string, error) {
 	doc := sv.doc
 	flag, given := o.given["origin"]
 	fixed, isFixed := fixedOrigin(flag)
 	geo := sv.geodetic[s.Source]
-	if given && !geo {
-		if s.Origin == nil {
-			return fmt.Sprintf("%s: --origin %s does not apply: the log's x, y are local metres with no geographic origin (--origin places logs with latitude and longitude columns), so its positions are taken to be about the other logs' origin", s.Source, flag), nil
+	if !geo && s.Origin == nil && len(sv.geodetic) > 0 {
+		var named []string
+		for _, p := range sv.logs {
+			if sv.geodetic[p] {
+				named = append(named, p)
+			}
 		}
-		if isFixed && *s.Origin != fixed {
-			return "", fmt.Errorf("%s: the log's x, y are local metres about its own origin (%.7f, %.7f, %.2f m), not the --origin %s given: --origin places logs with latitude and longitude columns only; leave it out (the results are then about the log's origin), or give the log's own",
-				s.Source, s.Origin.Lat, s.Origin.Lon, s.Origin.H, flag)
+		if isFixed {
+			return fmt.Sprintf("%s: --origin %s does not apply: the log's x, y are local metres with no geographic origin (--origin places logs with latitude and longitude columns), so its positions are taken to be about the --origin given, the origin the logs with latitude and longitude (%s) are placed about", s.Source, flag, strings.Join(named, ", ")), nil
 		}
+		how := "its own first reading"
+		if strings.TrimSpace(flag) == "mean" {
+			how = "its own mean position"
+		}
+		return "", fmt.Errorf("%s: the log's x, y are local metres with no geographic origin, beside logs with latitude and longitude (%s), each placed about %s (--origin %s): its positions cannot be placed among theirs, and taken to be about their origin they would be metres off; give the log the origin of its x, y (%s), or give that origin with --origin LAT,LON[,HEIGHT], which the logs with latitude and longitude are then placed about",
+			s.Source, strings.Join(named, ", "), how, originFlagName(flag), originHowTo)
+	}
+	if given && !geo && s.Origin != nil && isFixed && !sameGeodetic(*s.Origin, fixed) {
+		return "", fmt.Errorf("%s: the log's x, y are local metres about its own origin (%s), not the --origin %s given: --origin places logs with latitude and longitude columns only; leave it out (the results are then about the log's origin), or give the log's own, --origin %s",
+			s.Source, originText(*s.Origin), flag, originArg(*s.Origin))
 	}
 	if s.Origin == nil {
+		if !geo && doc.Frame.Origin != nil {
+			return fmt.Sprintf("%s: the log's x, y are local metres with no origin, beside %s, whose x, y are about the origin (%s): they are taken to be about it too, metres off if they are not; give the log its origin (%s)", s.Source, sv.originFrom, originText(geodeticOf(doc.Frame.Origin)), originHowTo), nil
+		}
+		if sv.noOrigin == "" {
+			sv.noOrigin = s.Source
+		}
 		return "", nil
 	}
 	org := &report.Origin{Lat: s.Origin.Lat, Lon: s.Origin.Lon, H: s.Origin.H}
 	if doc.Frame.Origin == nil {
 		doc.Frame.Origin = org
 		sv.originFrom = s.Source
+		if sv.noOrigin != "" && !geo {
+			return fmt.Sprintf("%s: the log's x, y are local metres with no origin, beside %s, whose x, y are about the origin (%s): they are taken to be about it too, metres off if they are not; give the log its origin (%s)", sv.noOrigin, s.Source, originText(*s.Origin), originHowTo), nil
+		}
 		return "", nil
 	}
-	if *doc.Frame.Origin == *org {
+	first := geodeticOf(doc.Frame.Origin)
+	if sameGeodetic(first, *s.Origin) {
 		return "", nil
 	}
-	first := doc.Frame.Origin
-	msg := fmt.Sprintf("%s: local positions are about origin (%.7f, %.7f, %.2f m), the earlier logs' about (%.7f, %.7f, %.2f m)",
-		s.Source, org.Lat, org.Lon, org.H, first.Lat, first.Lon, first.H)
+	msg := fmt.Sprintf("%s: local positions are about origin (%s), the earlier logs' about (%s)",
+		s.Source, originText(*s.Origin), originText(first))
+	firstGeo := sv.geodetic[sv.originFrom]
 	switch {
-	case geo && !isFixed:
+	case geo && firstGeo && !isFixed:
 		// --origin first or mean places each log about its own first or
 		// mean position.
 		how := "first reading"
 		if strings.TrimSpace(flag) == "mean" {
 			how = "mean position"
 		}
-		return "", fmt.Errorf("%s: each log's latitude and longitude are placed about its own %s unless --origin LAT,LON[,HEIGHT] gives one origin for all: add --origin %.7f,%.7f,%.2f (the first log's)",
-			msg, how, first.Lat, first.Lon, first.H)
-	case geo || sv.geodetic[sv.originFrom]:
+		return "", fmt.Errorf("%s: each log's latitude and longitude are placed about its own %s unless --origin LAT,LON[,HEIGHT] gives one origin for all: add --origin %s (the first log's)",
+			msg, how, originArg(first))
+	case geo || firstGeo:
 		// One log local about its own origin, the other geodetic: the
 		// geodetic one can be placed about the local one's origin.
 		local := first
 		if !geo {
-			local = org
+			local = *s.Origin
 		}
-		return "", fmt.Errorf("%s: give the logs with latitude and longitude the local log's origin, --origin %.7f,%.7f,%.2f", msg, local.Lat, local.Lon, local.H)
+		return "", fmt.Errorf("%s: give the logs with latitude and longitude the local log's origin, --origin %s", msg, originArg(local))
 	}
 	return "", fmt.Errorf("%s: both are local metres, in frames that cannot be fitted together; convert the logs they came from with one --origin LAT,LON[,HEIGHT] (undercurrent convert --origin)", msg)
+}
+
+// originHowTo says how a local log is given its origin: the comment line
+// ingest reads as the origin metadata (convert --origin places only logs
+// with latitude and longitude, and writes a local log without one).
+const originHowTo = "in a CSV log, a first line \"# " + ingest.MetaOrigin + ": LAT LON HEIGHT\""
+
+// sameOriginDeg and sameOriginM are how far apart two origins may be in
+// latitude and longitude, and in height, and be one: 1e-7 degrees is
+// 1.1 cm of latitude or less of longitude (WGS84 meridian radius 6.34 to
+// 6.40 Mm, NIMA TR8350.2), about the survey-copy check's surveyMatchM,
+// so an origin given rounded to 7 decimals is its own.
+const (
+	sameOriginDeg = 1e-7
+	sameOriginM   = 0.01
+)
+
+// sameGeodetic says whether two origins are one, within sameOriginDeg
+// and sameOriginM.
+func sameGeodetic(a, b ingest.Geodetic) bool {
+	return math.Abs(a.Lat-b.Lat) <= sameOriginDeg && math.Abs(a.Lon-b.Lon) <= sameOriginDeg && math.Abs(a.H-b.H) <= sameOriginM
+}
+
+// geodeticOf is the document's origin o as an ingest.Geodetic.
+func geodeticOf(o *report.Origin) ingest.Geodetic {
+	return ingest.Geodetic{Lat: o.Lat, Lon: o.Lon, H: o.H}
+}
+
+// originArg writes g as --origin takes it, to 1e-9 degrees (0.1 mm) and
+// 1 mm of height, trailing zeros left out: given back, it is the same
+// origin (sameGeodetic).
+func originArg(g ingest.Geodetic) string {
+	return trimFixed(g.Lat, 9) + "," + trimFixed(g.Lon, 9) + "," + trimFixed(g.H, 3)
+}
+
+// originText writes g for a message: "LAT, LON, H m".
+func originText(g ingest.Geodetic) string {
+	return trimFixed(g.Lat, 9) + ", " + trimFixed(g.Lon, 9) + ", " + trimFixed(g.H, 3) + " m"
+}
+
+// trimFixed writes v with prec decimals, trailing zeros (and a trailing
+// point) left out.
+func trimFixed(v float64, prec int) string {
+	t := strconv.FormatFloat(v, 'f', prec, 64)
+	if strings.Contains(t, ".") {
+		t = strings.TrimRight(strings.TrimRight(t, "0"), ".")
+	}
+	if t == "-0" {
+		t = "0"
+	}
+	return t
+}
+
+// originFlagName is --origin's value as the user gave it, or "first",
+// the default.
+func originFlagName(flag string) string {
+	if f := strings.TrimSpace(flag); f != "" {
+		return f
+	}
+	return "first"
 }
 
 // fixedOrigin parses --origin LAT,LON[,HEIGHT] (as readFlags.options
@@ -1528,21 +1622,24 @@ func fixedOrigin(flag string) (ingest.Geodetic, bool) {
 }
 
 // checkOriginFlag returns which logs have latitude and longitude columns
-// (from their headers, with the read options opts; a log that cannot be
-// opened counts as not, and its read says why), and refuses --origin when
-// none has: it places only such logs, and the settings would name an
-// origin the results are not about.
+// (from their headers, with the read options opts), and refuses --origin
+// when none has: it places only such logs, and the settings would name an
+// origin the results are not about. When a log cannot be opened, there is
+// no verdict: its read says why (a missing file, columns that need
+// --column), where "has none" would have sent the user to leave out an
+// origin the log needs.
 func checkOriginFlag(o *locateOptions, logs []string, opts []ingest.Option) (map[string]bool, error) {
 	geo := map[string]bool{}
 	flag, given := o.given["origin"]
 	fixed, isFixed := fixedOrigin(flag)
 	same := isFixed // every log local about the --origin given
+	unread := false // a log that cannot be opened
 	for _, path := range logs {
 		// A fixed origin spares reading the positions through for
 		// --origin mean; only the header is looked at.
 		r, err := ingest.Open(path, append(append([]ingest.Option(nil), opts...), ingest.WithOrigin(ingest.Geodetic{}))...)
 		if err != nil {
-			same = false
+			unread = true
 			continue
 		}
 		for _, m := range ingest.Mappings(r) {
@@ -1554,12 +1651,12 @@ func checkOriginFlag(o *locateOptions, logs []string, opts []ingest.Option) (map
 		md := r.Schema().Metadata()
 		if v, ok := md.GetValue(ingest.MetaOrigin); !ok {
 			same = false
-		} else if _, err := fmt.Sscanf(v, "%g %g %g", &own.Lat, &own.Lon, &own.H); err != nil || own != fixed {
+		} else if _, err := fmt.Sscanf(v, "%g %g %g", &own.Lat, &own.Lon, &own.H); err != nil || !sameGeodetic(own, fixed) {
 			same = false
 		}
 		r.Release()
 	}
-	if !given || len(geo) > 0 || same {
+	if !given || len(geo) > 0 || same || unread {
 		return geo, nil
 	}
 	what := logs[0] + " has none"

@@ -143,7 +143,7 @@ func TestLocateOriginFlag(t *testing.T) {
 	// A latitude/longitude log beside the local one about another origin:
 	// refused, naming the log and its own origin.
 	code, _, errOut = cli(t, "locate", "--group-by", "group", "--origin", "54.4,-2.0", a, local)
-	if code != 1 || !strings.Contains(errOut, local+": the log's x, y are local metres about its own origin (54.3125000, -2.0883000, 312.00 m), not the --origin 54.4,-2.0 given") {
+	if code != 1 || !strings.Contains(errOut, local+": the log's x, y are local metres about its own origin (54.3125, -2.0883, 312 m), not the --origin 54.4,-2.0 given") {
 		t.Errorf("a local log about another origin than --origin: exit %d, want 1 and a refusal naming it:\n%s", code, errOut)
 	}
 	// Beside a local log without an origin: a warning that --origin did
