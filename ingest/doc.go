@@ -19,7 +19,10 @@
 // from its name. Readers hand out arrow.RecordBatch values through
 // Next/RecordBatch/Err and hold only a few batches in memory at a time.
 //
-// Positions: Easting and Northing are read as x and y. A log with some of
+// Positions: Easting and Northing are read as east and north (x and y;
+// y and x in NED), after columns named exactly x and y, and not when the
+// log has latitude and longitude, which are read instead (a warning says
+// so; a mapping chooses either). A log with some of
 // x, y, z has the others read as 0, with a warning, listed in
 // Samples.Absent and carried by a conversion (MetaAbsent). A column that
 // looks like a position ("x [in]", "pos_x") but is not read, its

@@ -864,7 +864,8 @@ func TestSmallUnitsExact(t *testing.T) {
 	}{
 		{"time=ms", "1772359200100", parse("1772359200.1")},
 		{"time=ns", "1772359200100000000", parse("1772359200.1")},
-		{"bx=pT", "48213520", parse("48213.52")},
+		// by and bz too, or the axes would be in different units (refused).
+		{"bx=pT,by=pT,bz=pT", "48213520", parse("48213.52")},
 		{"x=cm", "305", parse("3.05")},
 	}
 	for _, c := range cases {

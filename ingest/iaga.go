@@ -9,6 +9,8 @@ import (
 	"strconv"
 	"strings"
 	"time"
+	"unicode"
+	"unicode/utf8"
 
 	"github.com/apache/arrow-go/v18/arrow"
 )
@@ -505,7 +507,8 @@ func iagaReportedMismatch(name string, reportedLine int, reported string, column
 }
 
 // iagaElements splits an element set such as "HDZF" or "HENULNUL" into
-// its elements ("NUL" is one).
+// its elements ("NUL" is one). Separators written between them ("H D Z
+// F", "H,D,Z,F", "H|D|Z|F") are skipped: anything but a letter.
 func iagaElements(s string) []string {
 	var out []string
 	for len(s) > 0 {
@@ -513,7 +516,11 @@ func iagaElements(s string) []string {
 			out, s = append(out, "NUL"), s[3:]
 			continue
 		}
-		out, s = append(out, s[:1]), s[1:]
+		r, n := utf8.DecodeRuneInString(s)
+		if unicode.IsLetter(r) {
+			out = append(out, s[:n])
+		}
+		s = s[n:]
 	}
 	return out
 }

@@ -204,8 +204,26 @@ func Mappings(r Reader) []ColumnMapping {
 
 func (p *plan) mappings() []ColumnMapping {
 	var m []ColumnMapping
-	for _, c := range p.out {
-		cm := ColumnMapping{Column: canonNames[c], Unit: p.unit[c], Scale: p.scale[c], UnitFrom: p.unitFrom[c]}
+	// An NED log's east column (its y) becomes the output's x, its north
+	// column y, and its down column, negated, z.
+	ned := [nCanon]string{}
+	if p.inFrame == FrameNED {
+		if !p.geodetic {
+			ned[cX], ned[cY], ned[cZ] = " (NED east)", " (NED north)", " (NED down, negated)"
+		}
+		ned[cBx], ned[cBy], ned[cBz] = " (NED east)", " (NED north)", " (NED down, negated)"
+	}
+	for _, out := range p.out {
+		c := out // the input's column
+		if ned[out] != "" {
+			switch out {
+			case cX, cBx:
+				c = out + 1
+			case cY, cBy:
+				c = out - 1
+			}
+		}
+		cm := ColumnMapping{Column: canonNames[out], Unit: p.unit[c], Scale: p.scale[c], UnitFrom: p.unitFrom[c]}
 		switch {
 		case p.desc[c] != "":
 			cm.Source = p.desc[c]
@@ -222,12 +240,7 @@ func (p *plan) mappings() []ColumnMapping {
 		default:
 			cm.Source = "(absent: 0)"
 		}
-		if c >= cX && c <= cZ && p.inFrame == FrameNED && !p.geodetic {
-			cm.Source += " (NED)"
-		}
-		if c >= cBx && c <= cBz && p.inFrame == FrameNED {
-			cm.Source += " (NED)"
-		}
+		cm.Source += ned[out]
 		m = append(m, cm)
 	}
 	return m
@@ -294,20 +307,28 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 		}
 	}
 	unitFromName := [nCanon]string{}
-	for i, h := range header {
-		if taken[i] {
-			continue
+	// Canonical names first, then aliases: a column named exactly x is
+	// x whatever the order of the columns, and "Easting" beside it is not.
+	for _, aliases := range []bool{false, true} {
+		for i, h := range header {
+			if taken[i] {
+				continue
+			}
+			c, u, alias, ok := p.autoName(h)
+			if !ok || alias != aliases || p.src[c] >= 0 {
+				continue
+			}
+			if _, explicit := cfg.mapping[c]; explicit {
+				continue
+			}
+			p.src[c] = i
+			p.auto[c] = true
+			unitFromName[c] = u
+			taken[i] = true
 		}
-		c, u, ok := autoName(h)
-		if !ok || p.src[c] >= 0 {
-			continue
-		}
-		if _, explicit := cfg.mapping[c]; explicit {
-			continue
-		}
-		p.src[c] = i
-		p.auto[c] = true
-		unitFromName[c] = u
+	}
+	if err := p.checkCompassMapping(headerLine); err != nil {
+		return nil, err
 	}
 	for c := range cfg.mapping {
 		if _, u := SplitUnit(header[p.src[c]]); u != "" {
@@ -391,6 +412,9 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 	}
 
 	// Positions.
+	if err := p.choosePositions(headerLine); err != nil {
+		return nil, err
+	}
 	anyXYZ := p.src[cX] >= 0 || p.src[cY] >= 0 || p.src[cZ] >= 0
 	hasLL := p.src[cLat] >= 0 && p.src[cLon] >= 0
 	if err := p.checkPositionNames(headerLine, anyXYZ, hasLL); err != nil {
@@ -399,7 +423,6 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 	switch {
 	case anyXYZ:
 		p.hasPos = true
-		p.src[cLat], p.src[cLon], p.src[cHeight] = -1, -1, -1
 	case hasLL:
 		p.hasPos, p.geodetic = true, true
 		switch cfg.originMode {
@@ -479,18 +502,65 @@ func groupBackwardsMsg(t, prev float64, group string) string {
 // the name itself or an alias, either possibly with a unit suffix, which
 // is returned.
 func autoName(h string) (c int, unit string, ok bool) {
+	c, unit, _, ok = autoNameAlias(h)
+	return c, unit, ok
+}
+
+// autoNameAlias is autoName that also reports whether the name is an
+// alias rather than the canonical name itself.
+func autoNameAlias(h string) (c int, unit string, alias, ok bool) {
 	base, u := SplitUnit(h)
-	c, ok = lookupName(h)
+	c, alias, ok = lookupNameAlias(h)
 	if !ok && u != "" {
-		c, ok = lookupName(base)
+		c, alias, ok = lookupNameAlias(base)
 		if ok {
 			if _, err := unitScale(kindOf(c), u); err != nil {
 				ok = false // "line_id" is not "line" in unit "id"
 			}
 		}
-		return c, u, ok
+		return c, u, alias, ok
 	}
-	return c, "", ok
+	return c, "", alias, ok
+}
+
+// autoName resolves a header name as the package-level autoName does, a
+// map grid's Easting and Northing going to the columns that hold east and
+// north in the input's frame (compassAxis).
+func (p *plan) autoName(h string) (c int, unit string, alias, ok bool) {
+	c, unit, alias, ok = autoNameAlias(h)
+	if ok {
+		if a, compass := compassAxis(h, p.inFrame); compass {
+			c = a
+		}
+	}
+	return c, unit, alias, ok
+}
+
+// compassAxis reports whether a column name is a map grid's "Easting" or
+// "Northing" (with or without a unit suffix), and returns the position
+// column that holds east or north in frame f: x and y in ENU (and in
+// sensor-frame logs, whose positions are ENU), y and x in NED, where x is
+// north.
+func compassAxis(h string, f Frame) (int, bool) {
+	n := strings.ToLower(strings.TrimSpace(h))
+	if n != "easting" && n != "northing" {
+		base, u := SplitUnit(h)
+		if u == "" {
+			return 0, false
+		}
+		n = strings.ToLower(base)
+	}
+	east, north := cX, cY
+	if f == FrameNED {
+		east, north = cY, cX
+	}
+	switch n {
+	case "easting":
+		return east, true
+	case "northing":
+		return north, true
+	}
+	return 0, false
 }
 
 // checkDuplicates refuses a column that the plan reads when another column
@@ -542,7 +612,7 @@ func (p *plan) checkDuplicates(headerLine int) error {
 				if j == i || norm(h) == norm(name) {
 					continue
 				}
-				if c2, _, ok := autoName(h); ok && c2 == c && !p.uses(j) {
+				if c2, _, _, ok := p.autoName(h); ok && c2 == c && !p.uses(j) {
 					p.warn("%s%s: %s %d (%q) and %d (%q) could both be %s; %d is read (choose with a mapping such as %s=NAME)",
 						p.file, where, what, i+1, name, j+1, h, canonNames[c], i+1, canonNames[c])
 				}
@@ -575,12 +645,18 @@ func (p *plan) uses(i int) bool {
 }
 
 func lookupName(h string) (int, bool) {
+	c, _, ok := lookupNameAlias(h)
+	return c, ok
+}
+
+// lookupNameAlias is lookupName that also reports whether h is an alias.
+func lookupNameAlias(h string) (c int, alias, ok bool) {
 	n := strings.ToLower(strings.TrimSpace(h))
 	if c, ok := canonIndex(n); ok {
-		return c, true
+		return c, false, true
 	}
-	c, ok := aliases[n]
-	return c, ok
+	c, ok = aliases[n]
+	return c, ok, ok
 }
 
 func defaultUnit(k kind) string {

@@ -131,6 +131,9 @@ func (p *plan) checkPositionNames(headerLine int, anyXYZ, hasLL bool) error {
 			continue
 		}
 		c, ok := positionLike(h)
+		if w := nameWords(h); ok && len(w) > 0 && p.inFrame == FrameNED && (w[0] == "easting" || w[0] == "northing") {
+			c, _ = compassAxis(w[0], p.inFrame) // "Easting [US ft]" is y in NED
+		}
 		if !ok || p.src[c] >= 0 {
 			continue
 		}
@@ -227,4 +230,137 @@ func columnList(names []string) string {
 		}
 	}
 	return strings.Join(out, ", ")
+}
+
+// choosePositions decides, for a log with both local positions (x, y, z)
+// and WGS84 ones (latitude, longitude, height), which are read; the
+// others' columns are left unread. A mapping decides: mapped x, y or z
+// choose the local positions, a mapped latitude, longitude or height the
+// WGS84 ones, and both together are refused. Without one, columns named
+// exactly x or y are read; x and y found only as a map grid's Easting and
+// Northing give way to latitude and longitude, which place the readings
+// on the Earth and whose north is true north (a grid's north is not);
+// either way a warning says which were read and how to choose the others.
+func (p *plan) choosePositions(headerLine int) error {
+	var local, geo []int // position columns found
+	var mappedLocal, mappedGeo []string
+	for _, c := range []int{cX, cY, cZ, cLat, cLon, cHeight} {
+		if p.src[c] < 0 {
+			continue
+		}
+		m := ""
+		if _, ok := p.cfg.mapping[c]; ok {
+			m = canonNames[c] + "=" + p.header[p.src[c]]
+		}
+		if c == cLat || c == cLon || c == cHeight {
+			geo = append(geo, c)
+			if m != "" {
+				mappedGeo = append(mappedGeo, m)
+			}
+		} else {
+			local = append(local, c)
+			if m != "" {
+				mappedLocal = append(mappedLocal, m)
+			}
+		}
+	}
+	if len(mappedLocal) > 0 && len(mappedGeo) > 0 {
+		return &Error{File: p.file, Line: headerLine, Batch: -1,
+			Msg: fmt.Sprintf("the mapping gives both local positions (%s) and WGS84 ones (%s): a log's positions are read from one or the other; leave out the mapping of the ones not to read",
+				strings.Join(mappedLocal, ", "), strings.Join(mappedGeo, ", "))}
+	}
+	hasLL := p.src[cLat] >= 0 && p.src[cLon] >= 0
+	if len(mappedGeo) > 0 && !hasLL && len(local) > 0 {
+		missing := "latitude and longitude"
+		switch {
+		case p.src[cLat] >= 0:
+			missing = "longitude"
+		case p.src[cLon] >= 0:
+			missing = "latitude"
+		}
+		return &Error{File: p.file, Line: headerLine, Batch: -1,
+			Msg: fmt.Sprintf("the mapping %s reads WGS84 positions, but no column gives the %s (columns found: %s); for local positions, map z instead of height (z=NAME, on the command line --column z=NAME)",
+				strings.Join(mappedGeo, ", "), missing, columnList(p.header))}
+	}
+	if len(local) == 0 || len(geo) == 0 {
+		return nil
+	}
+	names := func(cs []int) string {
+		var n []string
+		for _, c := range cs {
+			n = append(n, p.header[p.src[c]])
+		}
+		return strings.Join(n, ", ")
+	}
+	mapping := func(cs []int) string {
+		var n []string
+		for _, c := range cs {
+			n = append(n, canonNames[c]+"="+p.header[p.src[c]])
+		}
+		return strings.Join(n, ",")
+	}
+	drop := func(cs []int) {
+		for _, c := range cs {
+			p.src[c], p.auto[c] = -1, false
+		}
+	}
+	where := p.file + lineSuffix(headerLine)
+	grid := len(mappedLocal) == 0 // x and y only from Easting and Northing
+	for _, c := range []int{cX, cY} {
+		if p.src[c] >= 0 {
+			if _, compass := compassAxis(p.header[p.src[c]], p.inFrame); !compass {
+				grid = false
+			}
+		}
+	}
+	switch {
+	case len(mappedGeo) > 0 || (hasLL && grid):
+		if len(mappedGeo) == 0 {
+			p.warn("%s: the log has latitude and longitude (%s) and a map grid's coordinates (%s): positions are read from latitude and longitude, and %s are not read; to read the grid's instead, map them (try columns %s)",
+				where, names(geo), names(local), names(local), mapping(local))
+		} else if p.src[cX] >= 0 || p.src[cY] >= 0 {
+			p.warn("%s: positions are read from latitude and longitude, as mapped; %s are not read", where, names(local))
+		}
+		drop(local)
+	case len(mappedLocal) > 0 || !hasLL:
+		drop(geo)
+	default:
+		p.warn("%s: the log has local positions (%s) and latitude and longitude (%s): positions are read from %s, and %s are not read; to read latitude and longitude instead, map them (try columns %s)",
+			where, names(local), names(geo), names(local), names(geo), mapping(geo))
+		drop(geo)
+	}
+	return nil
+}
+
+// checkCompassMapping refuses a mapping that reads a map grid's Easting
+// as the position column that holds north in the input's frame, or
+// Northing as the one that holds east (x is north in NED): the readings
+// would be placed with east and north swapped, and every line fitted
+// across the wrong ground.
+func (p *plan) checkCompassMapping(headerLine int) error {
+	dir := map[int]string{cX: "east", cY: "north", cZ: "up"}
+	if p.inFrame == FrameNED {
+		dir = map[int]string{cX: "north", cY: "east", cZ: "down"}
+	}
+	first, fix := "", []string{}
+	for c := cX; c <= cZ; c++ {
+		if _, mapped := p.cfg.mapping[c]; !mapped {
+			continue
+		}
+		h := p.header[p.src[c]]
+		a, ok := compassAxis(h, p.inFrame)
+		if !ok || a == c {
+			continue
+		}
+		if first == "" {
+			first = fmt.Sprintf("mapping %s=%s: %q is a map grid's %s coordinate, but %s is %s in the %s frame",
+				canonNames[c], h, h, dir[a], canonNames[c], dir[c], strings.ToUpper(p.inFrame.String()))
+		}
+		fix = append(fix, canonNames[a]+"="+h)
+	}
+	if first == "" {
+		return nil
+	}
+	return &Error{File: p.file, Line: headerLine, Batch: -1,
+		Msg: fmt.Sprintf("%s: the readings would be placed with east and north swapped; map it to the axis that is its direction (try columns %s)", first, strings.Join(fix, ","))}
 }
