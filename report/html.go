@@ -669,7 +669,8 @@ func (v *view) summarise() {
 			// With further conductors this line is conductor 1's alone, and
 			// the next one gives the least cover over all of them.
 			subj := "Depth " + shortRef(d) + " is"
-			if len(d.Conductors) > 0 {
+			sidePairs := len(d.sidePairs()) > 0
+			if len(d.Conductors) > 0 || sidePairs {
 				subj = "Conductor 1: depth " + shortRef(d) + " is"
 			}
 			var line string
@@ -687,7 +688,7 @@ func (v *view) summarise() {
 				line += fmt.Sprintf("; least cover %s m", pm(c, d.coverSigma(lo.DepthSigma)))
 			}
 			v.Headline = append(v.Headline, line+".")
-			if len(d.Conductors) > 0 {
+			if len(d.Conductors) > 0 || sidePairs {
 				if lc := LeastCover(d); lc != "" {
 					v.Headline = append(v.Headline, lc)
 				}
@@ -800,42 +801,102 @@ func leastCoverOf(d *Document, r *Route) (lo Station, cover, sigma float64, ok b
 }
 
 // LeastCover says in a sentence the least cover over every conductor
-// followed along the route (conductor 1 and the further ones), naming the
-// conductor and its group: "Least cover over the 2 conductors followed: 0.349 ±
-// 0.00033 m, conductor 2 at T05 (chainage 20 m along conductor 2)." It is
-// empty when there is no route or the ground is not known. Only used
-// stations count, as for the cover check.
+// followed along the route (conductor 1 and the further ones) and the
+// go-and-return pairs reported beside conductor 1 (Group.Pair, followed
+// along no route), naming the conductor and its group: "Least cover over
+// the 2 conductors followed: 0.349 ± 0.00033 m, conductor 2 at T05
+// (chainage 20 m along conductor 2)." A pair's cover is its centre's, and
+// the sentence says that a core may lie shallower (PairCoreNote). When the
+// least cover is a further conductor's that may be a model artefact (a
+// weak line, or one whose current is not consistent along its track:
+// coverDoubt), the sentence says so and gives the least cover of the
+// others too; the shallow reading is kept, as the safe side. It is empty
+// when there is no route or the ground is not known. Only used stations
+// count, as for the cover check.
 func LeastCover(d *Document) string {
 	if d.Route == nil {
 		return ""
 	}
-	best, number, n := Station{}, 0, 0
-	var cover, sigma float64
-	try := func(r *Route, k int) {
-		s, c, sg, ok := leastCoverOf(d, r)
-		if !ok {
-			return
-		}
-		n++
-		if number == 0 || c < cover {
-			best, number, cover, sigma = s, k, c, sg
-		}
+	var cands []coverAt
+	if s, c, sg, ok := leastCoverOf(d, d.Route); ok {
+		cands = append(cands, coverAt{number: 1, key: s.Key, chainage: s.Chainage, cover: c, sigma: sg})
 	}
-	try(d.Route, 1)
+	n, first := len(cands), 1
 	for i := range d.Conductors {
-		try(&d.Conductors[i].Route, d.Conductors[i].Number)
+		t := &d.Conductors[i]
+		if s, c, sg, ok := leastCoverOf(d, &t.Route); ok {
+			cands = append(cands, coverAt{number: t.Number, key: s.Key, chainage: s.Chainage, cover: c, sigma: sg, doubt: coverDoubt(d, t, s)})
+			if n == 0 {
+				first = t.Number
+			}
+			n++
+		}
 	}
-	if number == 0 {
+	pairs, pairBest := 0, -1
+	var pair coverAt
+	for _, i := range d.sidePairs() {
+		g := &d.Groups[i]
+		c, ok := d.cover(g.Pair.Depth)
+		if !ok {
+			continue
+		}
+		if pairs == 0 || c < pair.cover {
+			pair = coverAt{key: g.Key, cover: c, sigma: d.coverSigma(g.Pair.DepthSigma)}
+			if g.Chainage != nil {
+				pair.chainage = *g.Chainage
+			}
+		}
+		pairs++
+	}
+	if pairs > 0 {
+		cands = append(cands, pair)
+		pairBest = len(cands) - 1
+	}
+	best, sure := -1, -1
+	for i, c := range cands {
+		if best < 0 || c.cover < cands[best].cover {
+			best = i
+		}
+		if c.doubt == "" && (sure < 0 || c.cover < cands[sure].cover) {
+			sure = i
+		}
+	}
+	if best < 0 {
 		return ""
 	}
-	where := fmt.Sprintf("conductor %d at %s (chainage %.0f m)", number, best.Key, best.Chainage)
-	if number > 1 {
-		where = fmt.Sprintf("conductor %d at %s (chainage %.0f m along conductor %d)", number, best.Key, best.Chainage, number)
+	var over string
+	switch {
+	case n == 1 && pairs == 0:
+		over = "Least cover: "
+	case n == 1 && first == 1:
+		over = fmt.Sprintf("Least cover over conductor 1 and the go-and-return pair beside it (seen in %s): ", plural(pairs, "group"))
+	case n == 1:
+		over = fmt.Sprintf("Least cover over conductor %d and the go-and-return pair beside conductor 1 (seen in %s): ", first, plural(pairs, "group"))
+	case n > 1 && pairs == 0:
+		over = fmt.Sprintf("Least cover over the %d conductors followed: ", n)
+	case n > 1:
+		over = fmt.Sprintf("Least cover over the %d conductors followed and the go-and-return pair beside conductor 1 (seen in %s): ", n, plural(pairs, "group"))
+	default:
+		over = fmt.Sprintf("Least cover over the go-and-return pair beside conductor 1 (seen in %s): ", plural(pairs, "group"))
 	}
-	if n == 1 {
-		return fmt.Sprintf("Least cover: %s m, %s.", pm(cover, sigma), where)
+	b := cands[best]
+	line := over + pm(b.cover, b.sigma) + " m, " + b.where()
+	if b.doubt != "" {
+		line += ", " + b.doubt
+		if sure >= 0 {
+			o := cands[sure]
+			if o.number == 1 {
+				line += fmt.Sprintf("; conductor 1's least cover is %s m at %s (chainage %.0f m)", pm(o.cover, o.sigma), o.key, o.chainage)
+			} else {
+				line += fmt.Sprintf("; the least cover of the others is %s m, %s", pm(o.cover, o.sigma), o.where())
+			}
+		}
 	}
-	return fmt.Sprintf("Least cover over the %d conductors followed: %s m, %s.", n, pm(cover, sigma), where)
+	if pairBest >= 0 && best != pairBest {
+		p := cands[pairBest]
+		line += fmt.Sprintf("; the go-and-return pair's centre lies under %s m at its shallowest (%s), and %s", pm(p.cover, p.sigma), p.key, PairCoreNote)
+	}
+	return line + "."
 }
 
 // ConductorSummary says in a sentence, as the crew report's summary does,
