@@ -49,7 +49,8 @@ current_a = 10.0
 // depth below grade): the scenario lays the cable 0.35 m down, and the
 // summary's value must agree with it within four of its sigmas plus a
 // millimetre. The summary used to give no cover for conductor 2, and the
-// report's "least cover" was the feeder's 1.0 m.
+// report's "least cover" was the feeder's 1.0 m. It also says where
+// chainage 0 is on the ground, as the crew report does.
 func TestLocateSummaryLeastCoverEveryConductor(t *testing.T) {
 	log := simulateText(t, t.TempDir(), "wrenby", wrenbyShallow, ".csv")
 	out := mustCLI(t, "locate", "--group-by", "group", "--sensor-height", "0.3", log)
@@ -78,5 +79,16 @@ func TestLocateSummaryLeastCoverEveryConductor(t *testing.T) {
 	}
 	if _, err := fmt.Sscanf(c2[i+len("least cover "):], "%g ± %g m", &v, &s); err != nil || math.Abs(v-0.35) > kSigma*s+0.001 {
 		t.Errorf("conductor 2's cover %q, true 0.35 m (%v)", c2[i:], err)
+	}
+	// Where chainage 0 lies, as the crew report says it: the feeder
+	// crosses the first traverse (T01, 2.5 m north) at east 0.
+	const zero = "Chainage 0 is where the fitted conductor crosses the first traverse along the route, T01, at E "
+	j := strings.Index(out, zero)
+	if j < 0 {
+		t.Fatalf("no chainage-0 sentence:\n%s", out)
+	}
+	var e, n float64
+	if _, err := fmt.Sscanf(out[j+len(zero):], "%g m, N %g m", &e, &n); err != nil || math.Abs(e) > 0.05 || math.Abs(n-2.5) > 0.05 {
+		t.Errorf("chainage 0 at E %g, N %g m (%v), want about E 0, N 2.5", e, n, err)
 	}
 }

@@ -1807,6 +1807,10 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 	if lc := report.LeastCover(doc); lc != "" {
 		fmt.Fprintln(w, lc)
 	}
+	// Where chainage 0 is on the ground, as the crew report says it.
+	if z := report.ChainageZero(doc); z != "" {
+		fmt.Fprintln(w, z)
+	}
 	if len(doc.Findings) == 0 {
 		fmt.Fprintln(w, "findings: none")
 	} else {
