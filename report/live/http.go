@@ -52,9 +52,10 @@ import (
 // listed for it are those that revision raised, none when it raised
 // none (until the re-read reaches the window, its older alarms stay);
 // revisions=all lists every revision, sorted by start and then revision
-// (revisions=latest is the default). The CSV history has one row per window and conductor
-// and ends with a revision column, after the columns it always had, so
-// readers that take columns by position or by name keep working.
+// (revisions=latest is the default). The CSV history has one row per window and conductor;
+// the revision column and then the geometry's share of the sigmas
+// (current_sigma_geometry_a, phase_sigma_geometry_deg) come after the columns it always had,
+// so readers that take columns by position or by name keep working.
 // Read endpoints are open when the API listens on
 // loopback; otherwise, and for every state-changing endpoint, the request
 // needs "Authorization: Bearer TOKEN" with the site's service token.
@@ -387,12 +388,14 @@ func (s *Service) history(w http.ResponseWriter, r *http.Request) {
 	writeJSON(w, ests)
 }
 
-// writeEstimatesCSV writes one row per window and conductor; revision is
-// the last column so that the earlier columns keep their places.
+// writeEstimatesCSV writes one row per window and conductor; later columns
+// (revision, then the commissioned geometry's share of the sigmas) come
+// after the earlier ones so that those keep their places.
 func writeEstimatesCSV(w http.ResponseWriter, ests []Estimate) {
 	w.Header().Set("Content-Type", "text/csv")
 	cw := csv.NewWriter(w)
-	cw.Write([]string{"asset", "window", "start", "end", "conductor", "current_a", "current_sigma_a", "phase_deg", "phase_sigma_deg", "rms_nt", "chi2", "dof", "quality", "sensors", "revision"})
+	cw.Write([]string{"asset", "window", "start", "end", "conductor", "current_a", "current_sigma_a", "phase_deg", "phase_sigma_deg", "rms_nt", "chi2", "dof", "quality", "sensors", "revision",
+		"current_sigma_geometry_a", "phase_sigma_geometry_deg"})
 	f := func(v float64) string { return strconv.FormatFloat(v, 'g', 10, 64) }
 	for _, e := range ests {
 		for _, c := range e.Conductors {
@@ -400,11 +403,20 @@ func writeEstimatesCSV(w http.ResponseWriter, ests []Estimate) {
 			if c.Phase != nil {
 				ph, phs = f(*c.Phase), f(*c.PhaseSigma)
 			}
+			// The commissioned geometry's share of the sigmas, common to all
+			// windows (empty when the geometry is taken as exact).
+			gs, gps := "", ""
+			if c.CurrentSigmaGeometry > 0 {
+				gs = f(c.CurrentSigmaGeometry)
+			}
+			if c.PhaseSigmaGeometry != nil {
+				gps = f(*c.PhaseSigmaGeometry)
+			}
 			cw.Write([]string{e.Asset, strconv.FormatInt(e.Window, 10), f(e.Start), f(e.End), c.Name, f(c.Current), f(c.CurrentSigma),
-				ph, phs, f(e.RMS), f(e.Chi2), strconv.Itoa(e.DOF), e.Quality, strconv.Itoa(e.Sensors), strconv.Itoa(e.Revision)})
+				ph, phs, f(e.RMS), f(e.Chi2), strconv.Itoa(e.DOF), e.Quality, strconv.Itoa(e.Sensors), strconv.Itoa(e.Revision), gs, gps})
 		}
 		if len(e.Conductors) == 0 {
-			cw.Write([]string{e.Asset, strconv.FormatInt(e.Window, 10), f(e.Start), f(e.End), "", "", "", "", "", f(e.RMS), f(e.Chi2), strconv.Itoa(e.DOF), e.Quality, strconv.Itoa(e.Sensors), strconv.Itoa(e.Revision)})
+			cw.Write([]string{e.Asset, strconv.FormatInt(e.Window, 10), f(e.Start), f(e.End), "", "", "", "", "", f(e.RMS), f(e.Chi2), strconv.Itoa(e.DOF), e.Quality, strconv.Itoa(e.Sensors), strconv.Itoa(e.Revision), "", ""})
 		}
 	}
 	cw.Flush()

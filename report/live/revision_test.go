@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"math"
 	"reflect"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -75,19 +76,21 @@ func TestHistoryAfterRestartLatestRevision(t *testing.T) {
 	if n := strings.Count(body, `"revision": 1`); n != 2 || strings.Contains(body, `"revision": 0`) {
 		t.Errorf("revisions=all JSON holds %d \"revision\": 1 (want 2) or a \"revision\": 0:\n%s", n, body)
 	}
-	// CSV: the revision is the last column.
+	// CSV: the revision comes after the columns the history always had
+	// (the 15th), then the geometry's share of the sigmas.
 	for q, want := range map[string][]string{"": {"0", "0", "1", "1"}, "&revisions=all": {"0", "0", "0", "1", "0", "1"}} {
 		code, body := call(t, r, "GET", "/api/v1/assets/fenwick-lane/history?format=csv&from="+from+"&to="+to+q, "", "")
 		rows, err := csv.NewReader(strings.NewReader(body)).ReadAll()
 		if code != 200 || err != nil || len(rows) != len(want)+1 {
 			t.Fatalf("csv%s: %d %v\n%s", q, code, err, body)
 		}
-		if h := rows[0]; h[0] != "asset" || h[len(h)-1] != "revision" {
-			t.Errorf("csv header %v: want asset first and revision last", h)
+		const rev = 14
+		if h := rows[0]; h[0] != "asset" || h[rev] != "revision" || !slices.Contains(h, "current_sigma_geometry_a") || !slices.Contains(h, "phase_sigma_geometry_deg") {
+			t.Errorf("csv header %v: want asset first, revision 15th and the geometry's sigma columns", h)
 		}
 		for i, row := range rows[1:] {
-			if row[len(row)-1] != want[i] {
-				t.Errorf("csv%s row %d: revision %s, want %s", q, i+1, row[len(row)-1], want[i])
+			if row[rev] != want[i] {
+				t.Errorf("csv%s row %d: revision %s, want %s", q, i+1, row[rev], want[i])
 			}
 		}
 	}
