@@ -8,6 +8,7 @@ import (
 	"sort"
 	"strings"
 	"sync"
+	"weak"
 
 	"gonum.org/v1/gonum/mat"
 
@@ -96,6 +97,13 @@ import (
 // off places the object where it makes up for them instead. Without a
 // close pair and with a search that explains the readings only the first
 // search runs, as before.
+//
+// Every loop of the search is bounded: the polish by polishSweeps, the
+// descent by dipoleRounds or splitRounds, the Newton steps by jointRounds
+// and the Levenberg-Marquardt steps by settleRounds, each also stopping
+// when it converges; a group is searched from at most two starts and one
+// per weak line of its fit, and once per Build (keepSearch), so the work
+// grows as the number of groups searched.
 //
 // An object beside a weaker conductor may leave the strongest one, which
 // the route follows, untouched and show only on that conductor's track
@@ -300,6 +308,7 @@ func checkDipoles(fits []Fit, r *route.Route) bool {
 		go func() {
 			defer func() { <-sem; wg.Done() }()
 			ds := searchDipole(f)
+			keepSearch(f, ds)
 			if ds != nil && !(ds.current > currentK(f.Problem.Phasors != nil)*ds.currentSigma) {
 				// With the object the conductor carries no current:
 				// the object alone.
@@ -324,6 +333,7 @@ func checkDipoles(fits []Fit, r *route.Route) bool {
 				continue
 			}
 		}
+		dropSearch(f)
 		f.Dipole, f.object, f.Result = true, ds.obj, ds.result
 		changed = true
 	}
@@ -466,7 +476,10 @@ func checkTrackDipoles(fits []Fit, r *route.Route, tracks []builtTrack) bool {
 		sem <- struct{}{}
 		go func() {
 			defer func() { <-sem; wg.Done() }()
-			j.ds = searchDipole(&fits[j.fit])
+			var ok bool
+			if j.ds, ok = keptSearch(&fits[j.fit]); !ok {
+				j.ds = searchDipole(&fits[j.fit])
+			}
 		}()
 	}
 	wg.Wait()
@@ -543,6 +556,69 @@ func aloneFindings(fits []Fit, r *route.Route) {
 		}
 		f.Values = vals
 	}
+}
+
+// A group that is a current anomaly both on the route and on a further
+// conductor's track is searched by checkDipoles and again by
+// checkTrackDipoles, with the same fit: in review a DC traverse beside a
+// go-and-return pair took half a minute of search each time. checkDipoles
+// keeps each search it made (keepSearch) and checkTrackDipoles takes it
+// (keptSearch) when the group still has the fit searched, the same
+// Result, Problem and Settings: searchDipole depends on nothing else. A
+// search is handed out once and dropped when checkDipoles takes its
+// object (the fit is then replaced); the rest go with their fits, the
+// store holding its keys weakly.
+var (
+	keptMu       sync.Mutex
+	keptSearches = map[weak.Pointer[inverse.Result]]keptEntry{}
+)
+
+type keptEntry struct {
+	problem  weak.Pointer[inverse.Problem]
+	settings weak.Pointer[inverse.Settings]
+	ds       *dipoleSearch // nil: the search found nothing
+}
+
+// keepSearch keeps ds, the search of f's fit, for keptSearch.
+func keepSearch(f *Fit, ds *dipoleSearch) {
+	k := weak.Make(f.Result)
+	keptMu.Lock()
+	_, had := keptSearches[k]
+	keptSearches[k] = keptEntry{weak.Make(f.Problem), weak.Make(f.Settings), ds}
+	keptMu.Unlock()
+	if !had {
+		runtime.AddCleanup(f.Result, func(k weak.Pointer[inverse.Result]) {
+			keptMu.Lock()
+			delete(keptSearches, k)
+			keptMu.Unlock()
+		}, k)
+	}
+}
+
+// keptSearch returns the search keepSearch kept for f's fit (nil when it
+// found nothing) and true, and forgets it; false when there is none or
+// f's fit has changed since.
+func keptSearch(f *Fit) (*dipoleSearch, bool) {
+	k := weak.Make(f.Result)
+	keptMu.Lock()
+	defer keptMu.Unlock()
+	e, ok := keptSearches[k]
+	if !ok {
+		return nil, false
+	}
+	delete(keptSearches, k)
+	if e.problem.Value() != f.Problem || e.settings.Value() != f.Settings {
+		return nil, false
+	}
+	return e.ds, true
+}
+
+// dropSearch forgets the search kept for f's fit.
+func dropSearch(f *Fit) {
+	k := weak.Make(f.Result)
+	keptMu.Lock()
+	delete(keptSearches, k)
+	keptMu.Unlock()
 }
 
 // dipoleSearch is the outcome of searchDipole.
@@ -677,6 +753,9 @@ type dipoleLocator struct {
 	// positions (inverse.StrengthsScan); scanLines are the lines it holds.
 	scan      *inverse.StrengthsScan
 	scanLines []inverse.Line
+	// evals counts the linear fits made (rss and fit), the search's unit
+	// of work.
+	evals int
 }
 
 // rss is the search's objective: the residual sum of squares with a dipole
@@ -687,6 +766,7 @@ func (l *dipoleLocator) rss(pos [3]float64) float64 {
 	if pos[2] > l.zTop {
 		return math.Inf(1)
 	}
+	l.evals++
 	fixed := l.srcs[:len(l.srcs)-1]
 	if !l.scanHolds(fixed) {
 		sc, err := inverse.NewStrengthsScan(l.p, fixed, l.set)
@@ -729,6 +809,7 @@ func (l *dipoleLocator) fit(pos [3]float64) (*inverse.Result, float64) {
 	if pos[2] > l.zTop {
 		return nil, math.Inf(1)
 	}
+	l.evals++
 	l.srcs[len(l.srcs)-1] = inverse.Dipole{Pos: pos}
 	r, err := inverse.FitStrengths(l.p, l.srcs, l.set)
 	if err != nil {
@@ -795,9 +876,13 @@ func (l *dipoleLocator) locate(start *[3]float64) ([3]float64, float64) {
 }
 
 // polish improves a position by a pattern search: a step along each axis
-// both ways, halved when none improves, down to until.
+// both ways, halved when none improves, down to until, and at most
+// polishSweeps sweeps of the six trial points (a sweep that moves keeps
+// the step, so without the cap an objective that keeps falling in one
+// direction, as a field best explained by a dipole ever deeper does,
+// would be followed without end: the search has no floor).
 func (l *dipoleLocator) polish(best [3]float64, bestRSS, step, until float64) ([3]float64, float64) {
-	for step >= until && !math.IsInf(bestRSS, 1) {
+	for sweep := 0; step >= until && !math.IsInf(bestRSS, 1) && sweep < polishSweeps; sweep++ {
 		moved := false
 		for a := range 3 {
 			for _, sgn := range []float64{-1, 1} {
@@ -814,6 +899,17 @@ func (l *dipoleLocator) polish(best [3]float64, bestRSS, step, until float64) ([
 	}
 	return best, bestRSS
 }
+
+// polishSweeps bounds the sweeps of one polish. From the grid's half step
+// (0.5 m) to 1 mm the step halves nine times, each after a sweep that does
+// not move; every other sweep moves one step. On the fixtures of this
+// package a polish takes up to about 110 sweeps (a draw of the AC Monte
+// Carlo of dipole_coverage_test.go, the object creeping along a shallow
+// valley at a fine step); one still going after 1000 has moved 990 steps
+// or more, 1 m even at 1 mm and 495 m at the grid's half step, far past
+// where it started: it is following an objective without a floor, not
+// converging.
+const polishSweeps = 1000
 
 // moment returns the dipole's moment per axis and sigmas from a
 // FitStrengths result whose dipole strengths start at j (the lines' before
@@ -1284,6 +1380,7 @@ type jointFit struct {
 	pos   [3]float64
 	lines []inverse.Line
 	step  []float64 // finite-difference steps: 5 cm for the dipole, 1 cm and 2 mrad for the lines
+	steps int       // the steps settle took
 }
 
 // newJointFit returns the joint model about pos and the lines loc holds, or
@@ -1429,18 +1526,31 @@ func (j *jointFit) refine(rss0 float64) float64 {
 
 // settle is refine for a start far from the minimum, where the Hessian
 // need not be positive definite: Levenberg-Marquardt steps (H + lambda
-// diag H) dx = -g, lambda divided by 10 after a step that lowers the
-// residual sum of squares and multiplied by 10 after one that does not
-// (Marquardt, J. SIAM 11(2):431-441, 1963, from memory), up to
-// settleRounds steps, stopping when the dipole moves less than 0.1 mm or
-// no step lowers the residual.
+// diag H) dx = -g with H = 2 J^T J, J the derivative of the profiled
+// residuals (the Gauss-Newton form of the Hessian, positive semidefinite),
+// lambda divided by 10 after a step that lowers the residual sum of
+// squares and multiplied by 10 after one that does not (Marquardt, J.
+// SIAM 11(2):431-441, 1963, from memory), up to settleRounds steps,
+// stopping when the dipole moves less than 0.1 mm, no step lowers the
+// residual, or a step lowers it by less than settleTol of itself.
+//
+// J and g take 2 fits per parameter (gaussNewton), where the full Hessian
+// of derivatives takes about 2 per pair of parameters: with two lines
+// held (11 parameters) 22 fits a step against 264. In review a merged
+// search of a DC traverse beside a go-and-return pair took all its steps
+// at 264 fits each, most of the run time of a seven-traverse survey.
 func (j *jointFit) settle(rss0 float64) float64 {
 	np := len(j.step)
 	lambda := 1e-3
 	x := make([]float64, np)
 	for range settleRounds {
-		g, H := j.derivatives(rss0)
+		j.steps++
+		g, H := j.gaussNewton()
+		if g == nil {
+			break
+		}
 		moved := false
+		before := rss0
 		for lambda < 1e8 {
 			A := mat.NewSymDense(np, nil)
 			A.CopySym(H)
@@ -1464,7 +1574,7 @@ func (j *jointFit) settle(rss0 float64) float64 {
 			}
 			lambda *= 10
 		}
-		if !moved || math.Hypot(math.Hypot(x[0], x[1]), x[2]) < 1e-4 {
+		if !moved || math.Hypot(math.Hypot(x[0], x[1]), x[2]) < 1e-4 || before-rss0 < settleTol*before {
 			break
 		}
 	}
@@ -1473,8 +1583,85 @@ func (j *jointFit) settle(rss0 float64) float64 {
 }
 
 // settleRounds bounds the steps of settle; on the split-cable fixtures it
-// takes under ten.
-const settleRounds = 30
+// takes under ten. settleTol is the relative fall of the residual sum of
+// squares below which a step counts as converged: with n readings of
+// noise variance s2 the sum is about n s2, so a fall of 1e-9 of it is a
+// chi-square change of 1e-9 n, under 1e-4 for the 10^5 readings of a
+// long traverse, nothing the criterion or the sigmas can see.
+const (
+	settleRounds = 30
+	settleTol    = 1e-9
+)
+
+// gaussNewton returns the gradient g of the residual sum of squares at
+// x = 0 and its Gauss-Newton Hessian 2 J^T J, J the derivative of the
+// profiled residuals (the strengths solved at each point), both by
+// central differences over gradStep of the Hessian's steps (2 fits per
+// parameter); nil when a fit fails. loc is left holding the lines
+// unperturbed.
+func (j *jointFit) gaussNewton() (*mat.VecDense, *mat.SymDense) {
+	p := j.loc.p
+	np := len(j.step)
+	n := len(p.Points)
+	nser := 3
+	if p.Phasors != nil {
+		nser = 6
+	}
+	J := mat.NewDense(nser*n, np, nil)
+	g := mat.NewVecDense(np, nil)
+	x := make([]float64, np)
+	ep, em := make([]float64, nser*n), make([]float64, nser*n)
+	defer j.set(make([]float64, np))
+	for a := range np {
+		h := gradStep * j.step[a]
+		var ss [2]float64
+		for k, sgn := range []float64{1, -1} {
+			clear(x)
+			x[a] = sgn * h
+			rr, _ := j.loc.fit(j.set(x))
+			if rr == nil || !residualSeries(p, rr, [][]float64{ep, em}[k]) {
+				return nil, nil
+			}
+			for _, e := range [][]float64{ep, em}[k] {
+				ss[k] += e * e
+			}
+		}
+		g.SetVec(a, (ss[0]-ss[1])/(2*h))
+		for i := range ep {
+			J.Set(i, a, (ep[i]-em[i])/(2*h))
+		}
+	}
+	H := mat.NewSymDense(np, nil)
+	H.SymOuterK(2, J.T())
+	return g, H
+}
+
+// residualSeries writes r's residuals to dst as p's readings' series, axis
+// by axis (for AC each axis's in-phase then quadrature part), and reports
+// whether r had a residual for every reading.
+func residualSeries(p *inverse.Problem, r *inverse.Result, dst []float64) bool {
+	n := len(p.Points)
+	if p.Phasors != nil {
+		if len(r.ResidualPhasors) != n {
+			return false
+		}
+		for i, e := range r.ResidualPhasors {
+			for a := range 3 {
+				dst[(2*a)*n+i], dst[(2*a+1)*n+i] = real(e[a]), imag(e[a])
+			}
+		}
+		return true
+	}
+	if len(r.Residuals) != n {
+		return false
+	}
+	for i, e := range r.Residuals {
+		for a := range 3 {
+			dst[a*n+i] = e[a]
+		}
+	}
+	return true
+}
 
 // uncertainty returns the one-sigma uncertainties of the dipole's position
 // and of its moment's magnitude, the lines' geometry free, about the
