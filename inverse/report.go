@@ -55,14 +55,7 @@ func (f *fitter) reorder(c *candidate) error {
 	if same {
 		return nil
 	}
-	g := make([]lineGeom, nl)
-	for i, j := range idx {
-		g[i] = sp.geom[j]
-	}
-	sp.geom = g
-	sp.ok = false
-	c.x, _, _ = sp.pack()
-	return sp.evaluate(c.x)
+	return c.permute(idx)
 }
 
 // summarise computes the covariance from the full Jacobian at the solution and the
