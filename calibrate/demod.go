@@ -156,6 +156,18 @@ type DemodLoss struct {
 	Repeats, Backwards, NotANumber int
 }
 
+// add counts l's losses into o (the group's name is o's).
+func (o *DemodLoss) add(l DemodLoss) {
+	o.Windows += l.Windows
+	o.Expected += l.Expected
+	o.Samples += l.Samples
+	o.Pauses += l.Pauses
+	o.LongestPause = math.Max(o.LongestPause, l.LongestPause)
+	o.Repeats += l.Repeats
+	o.Backwards += l.Backwards
+	o.NotANumber += l.NotANumber
+}
+
 // MaxStepIntervals is the longest time step, in sample intervals, that a
 // demodulation window spans: a single missing sample (a step of two
 // intervals) is spanned, the window fitted on its own time stamps; a
@@ -546,15 +558,7 @@ func (c *Columns) losses(runs []run, got []int, N, hop int, maxStep float64) []D
 				index[cur.Group] = k
 				out = append(out, DemodLoss{Group: cur.Group})
 			}
-			o := &out[k]
-			o.Windows += cur.Windows
-			o.Expected += cur.Expected
-			o.Samples += cur.Samples
-			o.Pauses += cur.Pauses
-			o.LongestPause = math.Max(o.LongestPause, cur.LongestPause)
-			o.Repeats += cur.Repeats
-			o.Backwards += cur.Backwards
-			o.NotANumber += cur.NotANumber
+			out[k].add(cur)
 		}
 	}
 	for i, r := range runs {
@@ -592,14 +596,7 @@ func lossWarning(ls []DemodLoss, grouped bool) string {
 	var per []string
 	for i := range ls {
 		l := &ls[i]
-		all.Windows += l.Windows
-		all.Expected += l.Expected
-		all.Samples += l.Samples
-		all.Pauses += l.Pauses
-		all.LongestPause = math.Max(all.LongestPause, l.LongestPause)
-		all.Repeats += l.Repeats
-		all.Backwards += l.Backwards
-		all.NotANumber += l.NotANumber
+		all.add(*l)
 		name := l.Group
 		if name == "" {
 			name = "(no group)"
