@@ -1,7 +1,6 @@
 package main
 
 import (
-	"encoding/json"
 	"math"
 	"os"
 	"path/filepath"
@@ -15,11 +14,7 @@ import (
 // source point (local metres), by group key.
 func groupPoints(t *testing.T, args ...string) map[string][3]float64 {
 	t.Helper()
-	out := mustCLI(t, append([]string{"locate", "--json"}, args...)...)
-	var doc resultDoc
-	if err := json.Unmarshal([]byte(out), &doc); err != nil {
-		t.Fatalf("locate --json: %v", err)
-	}
+	doc := locateDoc(t, args...)
 	got := map[string][3]float64{}
 	for _, g := range doc.Groups {
 		if len(g.Sources) > 0 {

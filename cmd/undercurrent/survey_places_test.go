@@ -1,7 +1,6 @@
 package main
 
 import (
-	"encoding/json"
 	"math"
 	"os"
 	"path/filepath"
@@ -40,11 +39,7 @@ func scenarioVariant(t *testing.T, dir, name string, repl ...string) string {
 // first current and its sigma, by group key.
 func locateCurrents(t *testing.T, args ...string) map[string][2]float64 {
 	t.Helper()
-	out := mustCLI(t, append([]string{"locate", "--json"}, args...)...)
-	var doc resultDoc
-	if err := json.Unmarshal([]byte(out), &doc); err != nil {
-		t.Fatalf("locate --json: %v", err)
-	}
+	doc := locateDoc(t, args...)
 	got := map[string][2]float64{}
 	for _, g := range doc.Groups {
 		if len(g.Sources) > 0 {
