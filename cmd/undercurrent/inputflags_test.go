@@ -10,7 +10,6 @@ import (
 	"testing"
 
 	"undercurrent/ingest"
-	"undercurrent/inverse/simulate"
 )
 
 // TestEveryReaderTakesTheInputFlags checks that every command that reads
@@ -91,16 +90,7 @@ func TestCalibrateColumnAndUnit(t *testing.T) {
 // positions about a given origin fits as the canonical log does, and the
 // document records the origin given.
 func TestLocateFrameOriginDelimiter(t *testing.T) {
-	sc, _ := scenario(t, "single-line.toml")
-	s, err := simulate.Simulate(sc)
-	if err != nil {
-		t.Fatal(err)
-	}
-	dir := t.TempDir()
-	canon := filepath.Join(dir, "canon.csv")
-	if err := ingest.WriteSamples(canon, s); err != nil {
-		t.Fatal(err)
-	}
+	s, dir, canon := canonicalLog(t, "single-line.toml")
 	// Kestrel Moor, an invented site on the moor.
 	origin := ingest.Geodetic{Lat: 54.3125, Lon: -2.0883, H: 312}
 	var ned, geo strings.Builder

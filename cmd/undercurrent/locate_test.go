@@ -421,20 +421,30 @@ func TestLocateSeveralLogs(t *testing.T) {
 	}
 }
 
-// TestLocateColumnsAndUnits reads a log whose east column has another name
-// and whose field is in microtesla, through --column and --unit: the fit is
-// the same as from the canonical log.
-func TestLocateColumnsAndUnits(t *testing.T) {
-	sc, _ := scenario(t, "single-line.toml")
+// canonicalLog simulates the scenario file name (testdata/scenarios) and
+// writes its readings in undercurrent's canonical CSV to canon.csv in a
+// fresh temporary directory dir, for tests that rewrite them in other
+// shapes and compare the fits.
+func canonicalLog(t *testing.T, name string) (s *ingest.Samples, dir, canon string) {
+	t.Helper()
+	sc, _ := scenario(t, name)
 	s, err := simulate.Simulate(sc)
 	if err != nil {
 		t.Fatal(err)
 	}
-	dir := t.TempDir()
-	canon := filepath.Join(dir, "canon.csv")
+	dir = t.TempDir()
+	canon = filepath.Join(dir, "canon.csv")
 	if err := ingest.WriteSamples(canon, s); err != nil {
 		t.Fatal(err)
 	}
+	return s, dir, canon
+}
+
+// TestLocateColumnsAndUnits reads a log whose east column has another name
+// and whose field is in microtesla, through --column and --unit: the fit is
+// the same as from the canonical log.
+func TestLocateColumnsAndUnits(t *testing.T) {
+	s, dir, canon := canonicalLog(t, "single-line.toml")
 	var b strings.Builder
 	b.WriteString("t,easting,y,z,bx,by,bz,group\n")
 	for i := range s.Len() {

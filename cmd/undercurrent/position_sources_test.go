@@ -9,7 +9,6 @@ import (
 	"testing"
 
 	"undercurrent/ingest"
-	"undercurrent/inverse/simulate"
 )
 
 // A GNSS export holds each reading's position twice, as WGS84 latitude,
@@ -24,16 +23,7 @@ import (
 // degrees here). A --unit for two of the three field axes of a log in
 // microtesla is refused, naming the third.
 func TestLocatePositionSources(t *testing.T) {
-	sc, _ := scenario(t, "single-line.toml")
-	s, err := simulate.Simulate(sc)
-	if err != nil {
-		t.Fatal(err)
-	}
-	dir := t.TempDir()
-	canon := filepath.Join(dir, "canon.csv")
-	if err := ingest.WriteSamples(canon, s); err != nil {
-		t.Fatal(err)
-	}
+	s, dir, canon := canonicalLog(t, "single-line.toml")
 	// Harrow Fen substation, an invented site in the fens.
 	origin := ingest.Geodetic{Lat: 52.4512, Lon: 0.1738, H: 1.5}
 	conv := 1.5 * math.Pi / 180
