@@ -12,7 +12,9 @@ import (
 // out when windows are compared) as the JSON does, after the columns the
 // history always had; a window solved on a geometry taken as exact leaves
 // them empty. Before, only the JSON carried it, and a reader of the CSV
-// could not take it out of current_sigma_a.
+// could not take it out of current_sigma_a. The estimates are invented
+// fixtures; what is checked is the project's own format (README, the live
+// pipeline's uncertainties), no outside value.
 func TestHistoryCSVGeometryShare(t *testing.T) {
 	gp := 0.4
 	ph, phs := 12.0, 0.5
