@@ -27,6 +27,8 @@ type candidate struct {
 	// three or more lines of this fit: a magnetised object explains the field
 	// they would stand for as well (pairOrObject).
 	noPairs bool
+	// memo is the last summary of this fit (summarise), with what it was made from.
+	memo *summaryMemo
 }
 
 // FitLines finds straight line currents (conductors) and a background from field
@@ -1257,6 +1259,7 @@ func (f *fitter) reweight(c *candidate) error {
 			sp.w[row] = math.Sqrt(w[row])
 		}
 		sp.ok = false
+		c.memo = nil // the weights changed: a summary made before no longer holds
 		lmp, _ := sp.problem()
 		r, err := levmar(lmp, c.x, f.set.lm())
 		if err != nil {

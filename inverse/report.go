@@ -63,7 +63,29 @@ func (f *fitter) reorder(c *candidate) error {
 // The lines are listed strongest first (reorder); a go-and-return pair the data do
 // not separate (PairEstimate) among three or more lines is ranked as one conductor,
 // by the field it makes (pairRank), its lines side by side.
+//
+// A fit is often summarised more than once (by the count's guard, the pair checks and
+// the final report): the summary is kept with the candidate (summaryMemo) and a copy
+// of it returned while the fit is unchanged.
 func (f *fitter) summarise(c *candidate) (*summary, error) {
+	if m := c.memo; m != nil && !summaryMemoOff && m.holds(f, c) {
+		// The callers expect the separable evaluated at the fit, as reorder leaves it.
+		if err := c.sp.evaluate(c.x); err != nil {
+			return nil, err
+		}
+		return m.su.clone(), nil
+	}
+	c.memo = nil
+	su, err := f.summariseOrdered(c)
+	if err != nil {
+		return nil, err
+	}
+	c.memo = &summaryMemo{x: slices.Clone(c.x), sp: c.sp, w: c.sp.w, noPairs: c.noPairs, splitting: f.splitting, su: su.clone()}
+	return su, nil
+}
+
+// summariseOrdered is summarise without the memo.
+func (f *fitter) summariseOrdered(c *candidate) (*summary, error) {
 	if err := f.reorder(c); err != nil {
 		return nil, err
 	}
@@ -79,6 +101,50 @@ func (f *fitter) summarise(c *candidate) (*summary, error) {
 		return nil, err
 	}
 	return f.summariseAsIs(c)
+}
+
+// summaryMemoOff turns the memo off (for tests that compare fits with and without it).
+var summaryMemoOff bool
+
+// summaryMemo is a candidate's last summary and what it depends on besides the fitter's
+// survey and settings: the parameters, the separable (its lines' order and bounds go
+// with the parameters), the robust weights, whether pairs are looked for, and whether
+// the fitter was taking a split pair's sigmas.
+type summaryMemo struct {
+	x                  []float64
+	sp                 *separable
+	w                  []float64
+	noPairs, splitting bool
+	su                 *summary
+}
+
+// holds reports whether the memo is the summary of c as it is now.
+func (m *summaryMemo) holds(f *fitter, c *candidate) bool {
+	return m.sp == c.sp && m.noPairs == c.noPairs && m.splitting == f.splitting &&
+		len(m.w) == len(c.sp.w) && (len(m.w) == 0 || &m.w[0] == &c.sp.w[0]) &&
+		slices.Equal(m.x, c.x)
+}
+
+// clone returns a copy of su that shares no memory with it.
+func (su *summary) clone() *summary {
+	out := *su
+	if su.cov != nil {
+		out.cov = mat.NewSymDense(su.cov.SymmetricDim(), nil)
+		out.cov.CopySym(su.cov)
+	}
+	out.lines = slices.Clone(su.lines)
+	for i := range out.lines {
+		out.lines[i].Notes = slices.Clone(out.lines[i].Notes)
+	}
+	out.pairs = slices.Clone(su.pairs)
+	for i := range out.pairs {
+		out.pairs[i].Notes = slices.Clone(out.pairs[i].Notes)
+	}
+	out.unresolved = slices.Clone(su.unresolved)
+	out.flip = slices.Clone(su.flip)
+	out.names = slices.Clone(su.names)
+	out.v = slices.Clone(su.v)
+	return &out
 }
 
 // pairRank returns the order in which the lines of su are to be listed when its
