@@ -2,6 +2,7 @@ package inverse
 
 import (
 	"errors"
+	"fmt"
 	"math"
 
 	"gonum.org/v1/gonum/floats"
@@ -77,6 +78,9 @@ const fnoise = 1e-12
 
 var errLMStart = errors.New("inverse: the model cannot be evaluated at the starting point")
 
+// errTooFewReadings is returned for a fit with more parameters than readings.
+var errTooFewReadings = errors.New("inverse: too few readings for the number of parameters")
+
 // levmar minimises ||r(x)||^2 by Levenberg-Marquardt with scaled trust-region steps
 // (J. J. More, Numerical Analysis, Springer LNM 630, 105-116, 1978). Each iteration factors the
 // column-scaled Jacobian by Householder QR (never forming J^T J); the trust-region
@@ -87,6 +91,11 @@ var errLMStart = errors.New("inverse: the model cannot be evaluated at the start
 func levmar(p *lmProblem, x0 []float64, set lmSettings) (*lmResult, error) {
 	set = set.withDefaults()
 	m, n := p.m, p.n
+	if m < n {
+		// The Householder factorisation of the Jacobian needs a row per parameter;
+		// the automatic count reaches this on a very short traverse.
+		return nil, fmt.Errorf("%w: %d residuals for %d parameters", errTooFewReadings, m, n)
+	}
 	x := make([]float64, n)
 	copy(x, x0)
 	project(x, p.lower, p.upper)
