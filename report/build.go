@@ -535,6 +535,8 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute boo
 			PlusMinus(s.Current, s.CurrentSigma), currentK(ac))
 	case !g.OK:
 		g.Problem = "the fit did not converge (" + g.Status + ")"
+	case f.Problem != nil && f.Problem.Sigma == 0 && res.DOF < MinDOF:
+		g.Problem = fewDOF(res.DOF)
 	default:
 		g.Problem = ambiguity(res.Criteria)
 	}
@@ -664,6 +666,23 @@ func markPoorGroups(groups []Group, r *route.Route) {
 
 // ambiguity says when the number of conductors is not clear: another
 // count, not rejected by the fit, scores within 2 of the chosen one on BIC.
+// MinDOF is the fewest degrees of freedom a fit must leave for its group to be
+// sound when the reading noise is not given. The noise is then estimated from the
+// residuals, and so every sigma: from nu degrees of freedom the estimate is
+// uncertain by about 1/sqrt(2 nu) of itself (the chi distribution's spread; common
+// practice), over 22% below 10. A traverse of three readings had been fitted from
+// 1-3 degrees of freedom and called sound.
+const MinDOF = 10
+
+// fewDOF is the problem of a fit that leaves dof < MinDOF degrees of freedom.
+func fewDOF(dof int) string {
+	spread := "cannot be estimated at all"
+	if dof > 0 {
+		spread = fmt.Sprintf("is uncertain by about %.0f%% of itself", 100/math.Sqrt(2*float64(dof)))
+	}
+	return fmt.Sprintf("the fit leaves only %d degrees of freedom: the reading noise, estimated from the residuals, %s, and every sigma with it; take more readings across the conductor, or give the reading noise (--noise)", dof, spread)
+}
+
 func ambiguity(cs []inverse.ModelScore) string {
 	var chosen *inverse.ModelScore
 	for i := range cs {
