@@ -26,7 +26,9 @@ import (
 // depth, and its cover finding (under a 0.8 m minimum, as codes state cover,
 // e.g. NEC Table 300.5) is conductor 2's, naming the cores' unknown spacing,
 // with no lone finding about the pair besides. results.csv gives both lines
-// conductor 2 and the GeoJSON a track line for it.
+// conductor 2 and the GeoJSON a track line for it. Each group's AC net
+// current, an RMS, is not negative (turning a pair whose net current has no
+// phase along the route negated it).
 func TestPairBesideCableFollowed(t *testing.T) {
 	const pairDepth = 0.6
 	fits := pairBesideCableFits(t, 1, pairDepth)
@@ -60,6 +62,10 @@ func TestPairBesideCableFollowed(t *testing.T) {
 		if p == nil {
 			t.Errorf("%s: no pair", g.Key)
 			continue
+		}
+		if p.NetCurrent < 0 {
+			// An RMS; turning the pair along the route turns its phase.
+			t.Errorf("%s: AC net current %.4g A, an RMS, is negative", g.Key, p.NetCurrent)
 		}
 		for _, j := range p.Sources {
 			if c := g.Sources[j].Conductor; c != 2 {
