@@ -258,7 +258,9 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 		// d.Groups are still in the order of fits here.
 		for _, t := range tracks {
 			for _, m := range t.members {
-				d.Groups[m.fit].Sources[m.source].Conductor = t.number
+				for _, j := range m.lines() {
+					d.Groups[m.fit].Sources[j].Conductor = t.number
+				}
 			}
 		}
 	}
@@ -271,7 +273,7 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 	d.SetRoute(r)
 	if d.Route != nil {
 		d.Route.PairNet = pairRoute
-		turnPairs(d.Groups, r)
+		turnPairs(d.Groups, r, ac)
 	}
 	if len(stations) < 2 {
 		d.Route = nil
@@ -716,8 +718,8 @@ func pairOf(res *inverse.Result) *inverse.PairEstimate {
 // Document.SetRoute turns the sources: a pair whose direction points
 // against increasing chainage is reversed, with its azimuth, offset and
 // the sign (DC) or phase (AC) of its net current, so that the net current
-// reads the same way at every station.
-func turnPairs(groups []Group, r *route.Route) {
+// reads the same way at every station (ac: the fits are AC).
+func turnPairs(groups []Group, r *route.Route, ac bool) {
 	dir := map[string][3]float64{}
 	for _, p := range r.Stations {
 		if _, dup := dir[p.Key]; !dup {
@@ -735,12 +737,15 @@ func turnPairs(groups []Group, r *route.Route) {
 		}
 		p.Azimuth = math.Mod(p.Azimuth+180, 360)
 		p.Offset = -p.Offset
-		if p.NetCurrentPhase != nil {
+		switch {
+		case p.NetCurrentPhase != nil:
 			ph := math.Mod(*p.NetCurrentPhase+360, 360) - 180 // +180 wrapped to [-180, 180)
 			p.NetCurrentPhase = &ph
-		} else {
+		case !ac:
 			p.NetCurrent = -p.NetCurrent
 		}
+		// An AC net current within its noise has no phase to turn; its
+		// RMS stays as the fit gave it, as on a track's station.
 	}
 }
 

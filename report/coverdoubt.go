@@ -16,6 +16,7 @@ type coverAt struct {
 	chainage     float64
 	cover, sigma float64
 	doubt        string
+	pair         bool // a further conductor that is a go-and-return pair (Route.PairNet)
 }
 
 // where names the station: "conductor 2 at T05 (chainage 20 m along
@@ -26,6 +27,9 @@ func (c coverAt) where() string {
 		return fmt.Sprintf("the go-and-return pair's centre at %s (chainage %.0f m); %s", c.key, c.chainage, PairCoreNote)
 	case 1:
 		return fmt.Sprintf("conductor 1 at %s (chainage %.0f m)", c.key, c.chainage)
+	}
+	if c.pair {
+		return fmt.Sprintf("the centre of conductor %d, a go-and-return pair, at %s (chainage %.0f m along conductor %d); %s", c.number, c.key, c.chainage, c.number, PairCoreNote)
 	}
 	return fmt.Sprintf("conductor %d at %s (chainage %.0f m along conductor %d)", c.number, c.key, c.chainage, c.number)
 }

@@ -461,6 +461,13 @@ func checkTrackDipoles(fits []Fit, r *route.Route, tracks []builtTrack) bool {
 				if fi.Key != f.Keys[1] || seen[m.fit] || fi.Dipole || fi.Result == nil {
 					continue
 				}
+				if m.pair != nil {
+					// A go-and-return pair's net current: the object
+					// search refits the group with lines and a dipole,
+					// where no pair is told (not in fits with a dipole),
+					// and would lose the pair it is judged on.
+					continue
+				}
 				seen[m.fit] = true
 				jobs = append(jobs, &job{fit: m.fit, track: t, src: fi.Result.Sources[m.source]})
 			}

@@ -439,7 +439,9 @@ type Route struct {
 	// currents along Direction (the current that does not return
 	// through the pair), so that a step is current leaving or joining
 	// the circuit. The cores' own currents, where resolved, are in the
-	// groups' sources.
+	// groups' sources. On a further conductor's Track.Route, true when
+	// that conductor is a go-and-return pair found beside conductor 1
+	// (Group.Pair), followed at its centre with its net current.
 	PairNet bool `json:"pair_net,omitempty"`
 }
 

@@ -825,7 +825,14 @@ func LeastCover(d *Document) string {
 	for i := range d.Conductors {
 		t := &d.Conductors[i]
 		if s, c, sg, ok := leastCoverOf(d, &t.Route); ok {
-			cands = append(cands, coverAt{number: t.Number, key: s.Key, chainage: s.Chainage, cover: c, sigma: sg, doubt: coverDoubt(d, t, s)})
+			doubt := ""
+			if !t.Route.PairNet {
+				// A go-and-return pair is told by its current times
+				// spacing, not by its net current, which a balanced
+				// pair keeps near zero.
+				doubt = coverDoubt(d, t, s)
+			}
+			cands = append(cands, coverAt{number: t.Number, key: s.Key, chainage: s.Chainage, cover: c, sigma: sg, doubt: doubt, pair: t.Route.PairNet})
 			if n == 0 {
 				first = t.Number
 			}
@@ -911,8 +918,12 @@ func trackHeadline(d *Document, t *Track) string {
 	if t.Offset < 0 {
 		side = "left"
 	}
-	line := fmt.Sprintf("Conductor %d was followed for %.0f m in %d groups, %s m to the %s of conductor 1 (looking along the route)",
-		t.Number, t.Route.Length, len(t.Route.Stations), num(math.Abs(t.Offset)), side)
+	what, current, depth := "", "current", "depth"
+	if t.Route.PairNet {
+		what, current, depth = ", a go-and-return pair,", "net current (the sum of its cores' currents)", "centre depth"
+	}
+	line := fmt.Sprintf("Conductor %d%s was followed for %.0f m in %d groups, %s m to the %s of conductor 1 (looking along the route)",
+		t.Number, what, t.Route.Length, len(t.Route.Stations), num(math.Abs(t.Offset)), side)
 	var used []Station
 	for _, s := range t.Route.Stations {
 		if s.Used {
@@ -921,7 +932,7 @@ func trackHeadline(d *Document, t *Track) string {
 	}
 	if len(used) > 0 {
 		a, b := used[0], used[len(used)-1]
-		line += fmt.Sprintf("; current %s A at %s and %s A at %s",
+		line += fmt.Sprintf("; %s %s A at %s and %s A at %s", current,
 			pm(a.Current, a.CurrentSigma), a.Key, pm(b.Current, b.CurrentSigma), b.Key)
 		switch flowAgainst(d, used) {
 		case 1:
@@ -934,11 +945,14 @@ func trackHeadline(d *Document, t *Track) string {
 			lo, hi = math.Min(lo, s.Depth), math.Max(hi, s.Depth)
 		}
 		rng, one := span(lo, hi)
-		line += fmt.Sprintf("; depth %s %s m", shortRef(d), rng)
+		line += fmt.Sprintf("; %s %s %s m", depth, shortRef(d), rng)
 		if s, c, sg, ok := leastCoverOf(d, &t.Route); ok {
 			line += fmt.Sprintf("; least cover %s m", pm(c, sg))
 			if !one {
 				line += " at " + s.Key
+			}
+			if t.Route.PairNet {
+				line += " (the centre's: " + PairCoreNote + ")"
 			}
 		}
 	}

@@ -17,7 +17,9 @@ func (d *Document) addLoneCover(fits []Fit, r *route.Route, rs *route.Settings, 
 	tracked := map[key]bool{}
 	for _, t := range tracks {
 		for _, m := range t.members {
-			tracked[key{m.fit, m.source}] = true
+			for _, j := range m.lines() { // both lines of a pair followed
+				tracked[key{m.fit, j}] = true
+			}
 		}
 	}
 	added := false

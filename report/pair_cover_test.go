@@ -65,9 +65,14 @@ func pairBesideCableFits(t testing.TB, seed uint64, pairDepth float64) []Fit {
 // shallower; and a shallow-cover warning must name the pair's groups. With the
 // pair at 1.2 m, under the cable, the same minimum gives no finding and the
 // least cover stays the cable's.
+//
+// A pair seen in enough groups is now followed as a further conductor
+// (TestPairBesideCableFollowed); here the tracks need more groups than the
+// survey has, so that the pair is seen but not followed, as when it shows
+// at too few traverses.
 func TestPairBesideCableCover(t *testing.T) {
 	fits := pairBesideCableFits(t, 1, 0.6)
-	d, err := Build(Document{Title: "Sallow Hythe feeder"}, fits, &BuildSettings{MinCover: 0.8})
+	d, err := Build(Document{Title: "Sallow Hythe feeder"}, fits, &BuildSettings{MinCover: 0.8, TrackMinStations: len(fits) + 1})
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -12,15 +12,22 @@ import (
 const PairCoreNote = "a core may lie shallower by up to half the cores' spacing, which the readings do not give"
 
 // sidePair returns group g's go-and-return pair when it lies beside the
-// group's conductor 1 (neither of Pair.Sources is source 0): reported
-// with the group but followed along no route, so that neither the
-// route's cover check nor a track's sees it. Nil when g has no such pair,
-// its fit is not usable (used false: failed, or left out of the route for
-// an object), or the pair's depth is not a number.
+// group's conductor 1 (neither of Pair.Sources is source 0) and no
+// further conductor's track follows it (its lines carry no
+// Source.Conductor: seen at too few groups to follow): reported with the
+// group only, so that neither the route's cover check nor a track's sees
+// it. Nil when g has no such pair, its fit is not usable (used false:
+// failed, or left out of the route for an object), the pair is followed,
+// or the pair's depth is not a number.
 func sidePair(g *Group, used bool) *Pair {
 	p := g.Pair
 	if p == nil || !used || !g.OK || p.Sources[0] == 0 || p.Sources[1] == 0 {
 		return nil
+	}
+	for _, j := range p.Sources {
+		if j < 0 || j >= len(g.Sources) || g.Sources[j].Conductor > 0 {
+			return nil // followed as a further conductor (tracks.go)
+		}
 	}
 	if !finite(p.Depth) || !finite(p.DepthSigma) || p.DepthSigma < 0 {
 		return nil

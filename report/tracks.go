@@ -25,6 +25,18 @@ import (
 //     A line within 60 degrees of the primary's direction in plan is met
 //     in that plane; a line more nearly square to it is placed by its own
 //     point. Dipole sources are not conductors and are skipped.
+//   - A go-and-return pair found beside conductor 1 (a Result.Pairs entry
+//     whose lines do not include the strongest; Group.Pair) is offered as
+//     one source at its centre, its net current as its current (for AC
+//     with the net current's phase), and its two lines, whose currents
+//     and positions the readings do not determine, are not offered. A
+//     pair joins only a track of pairs and a line only a track of lines:
+//     a pair's net current and one core's own current are not one
+//     profile, and a track mixing them would show false steps. The kept
+//     track of a pair is analysed from its centre, direction, net current
+//     and centre depth, as conductor 1 is when the route follows a pair
+//     (circuitOf); its findings say so (PairTrackNote), its Route.PairNet
+//     is true, and both lines of each group's pair carry its number.
 //   - The groups are walked in route order. Each open track predicts the
 //     offset at the group: its last offset, carried on by the slope between
 //     its last two stations (per metre of chainage, at most 1 in magnitude)
@@ -77,13 +89,29 @@ import (
 
 // trackSource is one line source offered for association: the fit and
 // source it comes from and where it lies across the primary conductor.
+// It may instead be a go-and-return pair found beside conductor 1 (pair
+// not nil, one of the fit's Result.Pairs whose lines do not include the
+// strongest): the pair is offered as one conductor, at its centre, with
+// its net current (the sum of its cores' currents, the current that does
+// not return through it) as its current, and source is -1, since neither
+// of the pair's lines is a conductor the readings determine (use lines).
 type trackSource struct {
 	fit, source int     // indices into the fits and the fit's sources
 	pos         int     // the group's position along the primary route
 	chainage    float64 // the group's chainage on the primary route, m
 	offset      float64 // signed offset from the primary conductor, m
 	depth       float64 // depth below the depth reference, m
-	current     float64 // |current|, A
+	current     float64 // |current|, A (a pair's |net current|)
+	pair        *inverse.PairEstimate
+}
+
+// lines are the indices of the fit's sources that m stands for: its
+// source, or a pair's two lines.
+func (m *trackSource) lines() []int {
+	if m.pair != nil {
+		return m.pair.Lines[:]
+	}
+	return []int{m.source}
 }
 
 // trackGate is the largest distance, m, of a source from a track for the
@@ -142,6 +170,11 @@ func associate(groups [][]trackSource, minStations int) [][]trackSource {
 				continue // closed
 			}
 			for ci, c := range cands {
+				if (c.pair == nil) != (last.pair == nil) {
+					// A pair's net current and a line's own current
+					// are not one profile: a track takes one kind.
+					continue
+				}
 				pred := t.predict(c.chainage)
 				if d := math.Hypot(c.offset-pred, c.depth-last.depth); d <= trackGate(c.depth, last.depth) {
 					pairs = append(pairs, pair{ti, ci, d})
@@ -225,7 +258,8 @@ func associate(groups [][]trackSource, minStations int) [][]trackSource {
 //
 // When the route follows a go-and-return pair (pairRoute, circuitOf) the
 // line paired with each group's strongest is part of conductor 1 and is
-// not offered.
+// not offered. A go-and-return pair beside conductor 1 is offered as one
+// source (trackSource.pair), and its lines are not.
 func trackCandidates(fits []Fit, r *route.Route, pairRoute, ac bool) [][]trackSource {
 	out := make([][]trackSource, len(r.Stations))
 	for k := range r.Stations {
@@ -244,8 +278,25 @@ func trackCandidates(fits []Fit, r *route.Route, pairRoute, ac bool) [][]trackSo
 		u := [2]float64{p.Dir[0] / uh, p.Dir[1] / uh}
 		right := [2]float64{u[1], -u[0]}
 		partner := circuitPartner(&fits[p.Index], ac, pairRoute)
+		inPair := map[int]bool{}
+		for i := range res.Pairs {
+			q := &res.Pairs[i]
+			a, b := q.Lines[0], q.Lines[1]
+			if a == 0 || b == 0 || a == partner || b == partner {
+				continue // conductor 1's own pair (circuitOf)
+			}
+			off, depth := crossOffset(p.Point, u, right, inverse.SourceEstimate{Point: q.Point, Dir: q.Dir, Depth: q.Depth})
+			if !soundPair(q, ac) || !finite(off) || !finite(depth) {
+				continue
+			}
+			inPair[a], inPair[b] = true, true
+			out[k] = append(out[k], trackSource{
+				fit: p.Index, source: -1, pos: k, chainage: p.Chainage,
+				offset: off, depth: depth, current: math.Abs(q.NetCurrent), pair: q,
+			})
+		}
 		for j, s := range res.Sources[1:] {
-			if s.Kind == KindDipole || j+1 == partner {
+			if s.Kind == KindDipole || j+1 == partner || inPair[j+1] {
 				continue
 			}
 			if !sound(&s) {
@@ -303,10 +354,48 @@ func sound(s *inverse.SourceEstimate) bool {
 	return true
 }
 
-// trackStation is the route station of one source of a track: the
-// primary's station of the group with the source's conductor in place of
-// the strongest one, and the group's fit statistics.
-func trackStation(f *Fit, j int, primary *route.Placed) route.Station {
+// soundPair reports whether a go-and-return pair's numbers can enter a
+// route analysis as a conductor's (trackStation): finite, with sigmas
+// that are not negative. An AC pair whose net current is within its
+// noise has no phase to speak of: its phase sigma may be anything, and
+// the route then learns nothing from it.
+func soundPair(q *inverse.PairEstimate, ac bool) bool {
+	vals := []float64{q.Point[0], q.Point[1], q.Point[2], q.Dir[0], q.Dir[1], q.Dir[2], q.NetCurrent, q.NetCurrentPhase, q.Depth}
+	for _, v := range vals {
+		if !finite(v) {
+			return false
+		}
+	}
+	sig := []float64{q.NetCurrentSigma, q.DepthSigma}
+	if ac {
+		sig = append(sig, q.NetCurrentPhaseSigma)
+	}
+	for _, v := range sig {
+		if !finite(v) || v < 0 {
+			return false
+		}
+	}
+	return true
+}
+
+// trackStation is the route station of track member m: the primary's
+// station of the group with m's conductor in place of the strongest one,
+// and the group's fit statistics. A go-and-return pair (m.pair) gives its
+// centre and direction, its net current with its phase (AC), and its
+// centre's depth, as conductor 1's station does when the route follows a
+// pair (buildGroup).
+func trackStation(f *Fit, m *trackSource, primary *route.Placed) route.Station {
+	if q := m.pair; q != nil {
+		st := primary.Station
+		st.Point, st.Dir = q.Point, q.Dir
+		st.Current, st.CurrentSigma = q.NetCurrent, q.NetCurrentSigma
+		st.Phase, st.PhaseSigma = q.NetCurrentPhase, q.NetCurrentPhaseSigma
+		st.Depth, st.DepthSigma = q.Depth, q.DepthSigma
+		st.Dipole, st.Object = false, nil
+		st.Further = nil
+		return st
+	}
+	j := m.source
 	s := f.Result.Sources[j]
 	st := primary.Station
 	st.Point, st.Dir = s.Point, s.Dir
@@ -329,6 +418,7 @@ type builtTrack struct {
 	members []trackSource
 	offset  float64
 	route   *route.Route
+	pair    bool // a go-and-return pair beside conductor 1 (trackSource.pair)
 }
 
 // buildTracks associates the further sources of the fits into tracks
@@ -345,14 +435,14 @@ func buildTracks(fits []Fit, r *route.Route, rs *route.Settings, minStations int
 		st := make([]route.Station, len(members))
 		off := make([]float64, len(members))
 		for k, m := range members {
-			st[k] = trackStation(&fits[m.fit], m.source, &r.Stations[m.pos])
+			st[k] = trackStation(&fits[m.fit], &m, &r.Stations[m.pos])
 			off[k] = m.offset
 		}
 		tr, err := route.Build(st, rs)
 		if err != nil {
 			return nil, fmt.Errorf("report: conductor %d: %w", n, err)
 		}
-		out = append(out, builtTrack{number: n, members: members, offset: median(off), route: tr})
+		out = append(out, builtTrack{number: n, members: members, offset: median(off), route: tr, pair: members[0].pair != nil})
 	}
 	return out, nil
 }
@@ -374,19 +464,33 @@ func (d *Document) addTracks(tracks []builtTrack) {
 		}
 	}
 	for _, t := range tracks {
-		d.Conductors = append(d.Conductors, Track{Number: t.number, Offset: t.offset, Route: *d.routeOf(t.route)})
+		tr := Track{Number: t.number, Offset: t.offset, Route: *d.routeOf(t.route)}
+		tr.Route.PairNet = t.pair
+		d.Conductors = append(d.Conductors, tr)
 		for _, f := range t.route.Findings {
 			if f.Kind == route.KindPoorFit && allIn(f.Keys, poor) {
 				continue
 			}
 			nf := findingOf(f)
 			nf.Conductor = t.number
-			nf.Message = fmt.Sprintf("conductor %d: %s", t.number, nf.Message)
+			if t.pair {
+				nf.Message = fmt.Sprintf("conductor %d: %s: %s", t.number, PairTrackNote, nf.Message)
+				if f.Kind == route.KindShallowCover {
+					nf.Message += "; " + PairCoreNote
+				}
+			} else {
+				nf.Message = fmt.Sprintf("conductor %d: %s", t.number, nf.Message)
+			}
 			d.Findings = append(d.Findings, nf)
 		}
 	}
 	SortFindings(d.Findings)
 }
+
+// PairTrackNote says, in a further conductor's findings, what its current
+// and depth are when it is a go-and-return pair beside conductor 1
+// (Track.Route.PairNet).
+const PairTrackNote = "a go-and-return pair (its current is the pair's net current, the sum of its two cores' currents, so a step in it is current leaving or joining that circuit; its depth and cover are the pair's centre's)"
 
 func allIn(keys []string, set map[string]bool) bool {
 	for _, k := range keys {
