@@ -26,7 +26,9 @@ const (
 // "coordinate_frame" is "local-enu" and "coordinate_note" says so in words,
 // so that nobody takes them for longitudes and latitudes. The top-level
 // member "depth_reference" is the document's DepthReference, as
-// results.json writes it: what every depth_m is measured from.
+// results.json writes it: what every depth_m is measured from. The
+// top-level member "cautions" (a foreign member, RFC 7946 section 6.1)
+// holds Cautions, so that a crew given only this layer has them.
 //
 // Features, each with a "feature" property naming what it is:
 //
@@ -229,11 +231,12 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 	var buf bytes.Buffer
 	buf.WriteString(`{"type":"FeatureCollection",`)
 	head, err := json.Marshal(struct {
-		Frame  string         `json:"coordinate_frame"`
-		Note   string         `json:"coordinate_note,omitempty"`
-		Origin *Origin        `json:"local_origin,omitempty"`
-		Depth  DepthReference `json:"depth_reference"`
-	}{fc.Frame, fc.Note, fc.Origin, d.DepthReference})
+		Cautions []string       `json:"cautions"`
+		Frame    string         `json:"coordinate_frame"`
+		Note     string         `json:"coordinate_note,omitempty"`
+		Origin   *Origin        `json:"local_origin,omitempty"`
+		Depth    DepthReference `json:"depth_reference"`
+	}{Cautions, fc.Frame, fc.Note, fc.Origin, d.DepthReference})
 	if err != nil {
 		return fmt.Errorf("report: GeoJSON: %w", err)
 	}

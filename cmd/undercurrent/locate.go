@@ -1715,7 +1715,8 @@ func pairColumns(g *report.Group, i int) (cur, dep string, ok bool) {
 	return "", "", false
 }
 
-// printSummary prints the groups and findings for a person.
+// printSummary prints the groups and findings for a person, then the
+// cautions.
 func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 	ok, readings := soundGroups(doc)
 	unit := "readings"
@@ -1821,6 +1822,17 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 	}
 	for _, wn := range doc.Warnings {
 		fmt.Fprintf(w, "warning: %s\n", wn)
+	}
+	printCautions(w)
+}
+
+// printCautions prints the safety cautions every crew report carries
+// (report.Cautions), after the findings, so that a crew reading only the
+// terminal has them too.
+func printCautions(w io.Writer) {
+	fmt.Fprintln(w, "cautions:")
+	for _, c := range report.Cautions {
+		fmt.Fprintf(w, "  %s\n", c)
 	}
 }
 
