@@ -359,7 +359,10 @@ func (v *view) where(f Finding) string {
 }
 
 func (v *view) groupRow(g *Group) groupRow {
-	r := groupRow{Key: g.Key, Points: fmt.Sprint(g.Points), RMS: num(g.RMS), Bad: !g.OK || g.Problem != ""}
+	r := groupRow{Key: g.Key, Points: fmt.Sprint(g.Points), RMS: "–", Bad: !g.OK || g.Problem != ""}
+	if rms, ok := GroupRMS(g); ok {
+		r.RMS = rms
+	}
 	if r.Key == "" {
 		r.Key = "(all)"
 	}

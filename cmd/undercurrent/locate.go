@@ -1764,8 +1764,14 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 		if g.Chainage != nil {
 			ch = fmt.Sprintf("%.1f m", *g.Chainage)
 		}
+		// The rms as the crew report's table gives it, "-" when the fit
+		// estimated none (not 0, which would read as a perfect fit).
+		rms, ok := report.GroupRMS(&g)
+		if !ok {
+			rms = "-"
+		}
 		if len(g.Sources) == 0 {
-			fmt.Fprintf(w, "%-8s %10s %*s %*s %9.3g  %s\n", key, ch, cw, "-", dw, "-", g.RMS, g.Problem)
+			fmt.Fprintf(w, "%-8s %10s %*s %*s %9s  %s\n", key, ch, cw, "-", dw, "-", rms, g.Problem)
 			continue
 		}
 		for i, s := range g.Sources {
@@ -1795,7 +1801,7 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 				}
 				note = fmt.Sprintf(" %9s", c) + note
 			}
-			fmt.Fprintf(w, "%-8s %10s %*s %*s %9.3g%s\n", k, ch, cw, cur, dw, dep, g.RMS, note)
+			fmt.Fprintf(w, "%-8s %10s %*s %*s %9s%s\n", k, ch, cw, cur, dw, dep, rms, note)
 		}
 	}
 	if doc.Route != nil && doc.Route.PairNet {
