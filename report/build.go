@@ -281,6 +281,7 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 	}
 	d.addTracks(tracks)
 	d.addLoneCover(fits, r, rs, tracks)
+	d.addLoneAzimuthSigmas()
 	d.addPairCover(rs)
 	return &d, nil
 }
