@@ -1766,8 +1766,8 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 		}
 		// The rms as the crew report's table gives it, "-" when the fit
 		// estimated none (not 0, which would read as a perfect fit).
-		rms, ok := report.GroupRMS(&g)
-		if !ok {
+		rms, has := report.GroupRMS(&g)
+		if !has {
 			rms = "-"
 		}
 		if len(g.Sources) == 0 {
