@@ -283,6 +283,7 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 	}
 	d.addTracks(tracks)
 	d.addLoneCover(fits, r, rs, tracks)
+	d.addLoneAzimuthSigmas()
 	d.addPairCover(rs)
 	return &d, nil
 }
@@ -798,15 +799,20 @@ func buildSource(s inverse.SourceEstimate, pts [][3]float64, ac bool) Source {
 		ph, phs := s.Phase, s.PhaseSigma
 		out.Phase, out.PhaseSigma = &ph, &phs
 	}
+	phased := s.Identifiable.Phase || !ac
 	if kind == KindDipole {
 		m, ms := s.Moment, s.MomentSigma
 		out.Moment, out.MomentSigma = &m, &ms
+		if ps := dipolePhaseSigma(m, ms); ac && s.PhaseSigma == 0 && ps > 0 {
+			// The moment's reference phase is estimated, not held.
+			out.PhaseSigma, phased = &ps, true
+		}
 	}
 	id := s.Identifiable
 	for _, q := range []struct {
 		ok   bool
 		name string
-	}{{id.Current, "current"}, {id.Phase || !ac, "phase"}, {id.Depth, "depth"}, {id.Offset, "offset"}, {id.Azimuth, "azimuth"}, {id.Dip, "dip"}} {
+	}{{id.Current, "current"}, {phased, "phase"}, {id.Depth, "depth"}, {id.Offset, "offset"}, {id.Azimuth, "azimuth"}, {id.Dip, "dip"}} {
 		if !q.ok {
 			out.Unidentifiable = append(out.Unidentifiable, q.name)
 		}
@@ -891,3 +897,25 @@ func signalRMS(res *inverse.Result) float64 {
 // nanoMetre rounds a length in metres to the nearest nanometre, far below
 // any depth's uncertainty, for the document's derived reference heights.
 func nanoMetre(v float64) float64 { return math.Round(v*1e9) / 1e9 }
+
+// dipolePhaseSigma is the one-sigma uncertainty, degrees, of an AC
+// dipole's reference phase: the phase of the phasor of its strongest axis,
+// whose part in phase with that phase is the axis's moment m[a] (acMoment)
+// and whose parts in phase and in quadrature have the axis's sigma ms[a].
+// To first order (the law of propagation of uncertainty, JCGM 100:2008
+// section 5.1.2, applied to atan2 at zero quadrature) it is ms[a]/|m[a]|
+// radians. Zero when the moment has no strongest axis or no sigma, or when
+// the sigma is as large as the moment (the phase is then not determined
+// and stays unidentifiable).
+func dipolePhaseSigma(m, ms [3]float64) float64 {
+	big := 0
+	for a := range 3 {
+		if math.Abs(m[a]) > math.Abs(m[big]) {
+			big = a
+		}
+	}
+	if !(math.Abs(m[big]) > ms[big]) || !(ms[big] > 0) {
+		return 0
+	}
+	return ms[big] / math.Abs(m[big]) * 180 / math.Pi
+}

@@ -81,7 +81,8 @@ var csvCol = func() map[string]int {
 // positive (a quantity held rather than fitted, such as an assumed
 // azimuth, or one a failed fit did not estimate) is left empty, as the
 // GeoJSON leaves it out, rather than written as 0, which would read as
-// exact; cover_sigma_m is then empty too.
+// exact; cover_sigma_m is then empty too. So is rms_nt for a group whose
+// fit failed before estimating anything (too few readings).
 func WriteCSV(w io.Writer, d *Document) error {
 	if err := d.Validate(); err != nil {
 		return err
@@ -112,7 +113,9 @@ func WriteCSV(w io.Writer, d *Document) error {
 				set("lat_deg", fix(lat, 8))
 			}
 			set("points", strconv.Itoa(g.Points))
-			set("rms_nt", sig(g.RMS))
+			if g.fitted() {
+				set("rms_nt", sig(g.RMS)) // empty when the fit estimated none
+			}
 			if g.ReferenceChi2 > 0 {
 				set("reference_chi2", sig(g.ReferenceChi2))
 			}

@@ -16,6 +16,11 @@
 //     a summary, plots drawn with gonum.org/v1/plot as inline SVG, and the
 //     corrections and settings used.
 //
+// The safety cautions (Cautions) go into every file a crew may be given
+// alone: report.html opens with them, results.json and route.geojson carry
+// them in a top-level "cautions" array, and findings.csv in its first rows
+// (kind "safety"); results.csv is a data table without them.
+//
 // Every writer validates the document first (Document.Validate) and writes
 // nothing when it is invalid, so a NaN never reaches a file. The writers
 // take an io.Writer; WriteFiles renders all five in memory and then writes

@@ -43,7 +43,7 @@ func ExampleWriteGeoJSON() {
 		fmt.Println(err)
 	}
 	// Output:
-	// {"type":"FeatureCollection","coordinate_frame":"wgs84","local_origin":{"lat_deg":52.4719,"lon_deg":0.1623,"height_m":3},"depth_reference":{"kind":"mean-sensor-height","z_m":0,"sensor_height_m":0.3},
+	// {"type":"FeatureCollection","cautions":["These are estimates computed from magnetic field readings, not a verified locate.","Confirm the position and depth of every conductor by approved methods before any excavation.","Treat every conductor as live, whatever current this report estimates.","Local codes, permits and licensed practice prevail over anything in this report."],"coordinate_frame":"wgs84","local_origin":{"lat_deg":52.4719,"lon_deg":0.1623,"height_m":3},"depth_reference":{"kind":"mean-sensor-height","z_m":0,"sensor_height_m":0.3},
 	// "features":[
 	// {"type":"Feature","geometry":{"type":"Point","coordinates":[0.16233547,52.47190000]},"properties":{"azimuth_deg":0.400,"azimuth_sigma_deg":0.3,"conductor":1,"cover_m":0.82000,"cover_sigma_m":0.006,"current_a":12.3100,"current_sigma_a":0.04,"depth_m":1.12000,"depth_reference":"mean-sensor-height","depth_sigma_m":0.006,"feature":"conductor","group":"","ok":true,"source":1,"span_m":[-10.000,10.000]}}
 	// ]}
@@ -60,6 +60,12 @@ func ExampleWriteJSON() {
 	}
 	// Output:
 	// {
+	//   "cautions": [
+	//     "These are estimates computed from magnetic field readings, not a verified locate.",
+	//     "Confirm the position and depth of every conductor by approved methods before any excavation.",
+	//     "Treat every conductor as live, whatever current this report estimates.",
+	//     "Local codes, permits and licensed practice prevail over anything in this report."
+	//   ],
 	//   "schema_version": 1,
 	//   "tool": {
 	//     "name": "undercurrent",

@@ -24,7 +24,15 @@ var findingsHeader = []string{
 // (with longitude and latitude when the document is geo-referenced), the
 // numbers behind the finding as "name = value ± sigma unit" (four
 // significant digits for a value without a sigma) joined by "; ", and the
-// message. A document with no findings gives the header alone.
+// message.
+//
+// The first rows, before the findings, are the safety cautions every crew
+// report carries (Cautions), one row each with severity "caution", kind
+// "safety" (SafetyKind, which no finding has), the caution in message and
+// every other column empty, so that a crew given only the spreadsheet
+// reads them first; a program wanting the findings alone skips the rows
+// of kind "safety". A document with no findings gives the header and the
+// cautions.
 //
 // The file starts with a UTF-8 byte order mark (EF BB BF), so that
 // spreadsheets that otherwise guess a legacy code page show "±" and "°"
@@ -40,6 +48,13 @@ func WriteFindingsCSV(w io.Writer, d *Document) error {
 	cw := csv.NewWriter(w)
 	if err := cw.Write(findingsHeader); err != nil {
 		return fmt.Errorf("report: writing findings CSV: %w", err)
+	}
+	for _, c := range Cautions {
+		row := make([]string, len(findingsHeader))
+		row[0], row[1], row[len(row)-1] = SeverityCaution, SafetyKind, c
+		if err := cw.Write(row); err != nil {
+			return fmt.Errorf("report: writing findings CSV: %w", err)
+		}
 	}
 	for _, f := range d.Findings {
 		conductor := "1"
@@ -82,6 +97,10 @@ func WriteFindingsCSV(w io.Writer, d *Document) error {
 	}
 	return nil
 }
+
+// SafetyKind is the kind of the rows of findings.csv that hold the
+// safety cautions (Cautions) rather than a finding.
+const SafetyKind = "safety"
 
 // utf8BOM is the UTF-8 encoding of U+FEFF, the byte order mark.
 const utf8BOM = "\uFEFF"

@@ -26,7 +26,9 @@ const (
 // "coordinate_frame" is "local-enu" and "coordinate_note" says so in words,
 // so that nobody takes them for longitudes and latitudes. The top-level
 // member "depth_reference" is the document's DepthReference, as
-// results.json writes it: what every depth_m is measured from.
+// results.json writes it: what every depth_m is measured from. The
+// top-level member "cautions" (a foreign member, RFC 7946 section 6.1)
+// holds Cautions, so that a crew given only this layer has them.
 //
 // Features, each with a "feature" property naming what it is:
 //
@@ -53,6 +55,11 @@ const (
 //     station entered its conductor's current and cover profile
 //     (Station.Used; with "left_out", the reason, when false), absent for
 //     a source that is no station of a conductor's route;
+//   - "pair conductor": a "conductor" Point that is one of the two lines
+//     of an unresolved go-and-return pair (Group.Pair): its depth, cover
+//     and azimuth are the pair's centre's, with the pair's current times
+//     spacing and net current in place of a current, which the line's
+//     own is not determined;
 //   - "object": one Point per dipole source (a magnetised object), with
 //     the group key, chainages, depth, depth_reference and cover and their
 //     sigmas as for a conductor, and the magnitude of its moment,
@@ -166,9 +173,14 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 				// A line of an unresolved go-and-return pair: its current
 				// and depth are not determined; the pair's centre, depth
 				// and current times spacing are (Group.Pair).
-				delete(props, "current_a")
-				delete(props, "phase_deg")
+				for _, k := range []string{"current_a", "current_sigma_a", "phase_deg", "phase_sigma_deg", "azimuth_sigma_deg"} {
+					delete(props, k)
+				}
 				props["feature"] = "pair conductor"
+				// The pair's bearing, as results.csv and the report give
+				// it: a line's own azimuth means nothing here.
+				props["azimuth_deg"] = roundSig(p.Azimuth, p.AzimuthSigma, 2)
+				putSigma(props, "azimuth_sigma_deg", p.AzimuthSigma)
 				props["depth_m"] = roundSig(p.Depth, p.DepthSigma, 3)
 				putSigma(props, "depth_sigma_m", p.DepthSigma)
 				if c, ok := d.cover(p.Depth); ok {
@@ -229,11 +241,12 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 	var buf bytes.Buffer
 	buf.WriteString(`{"type":"FeatureCollection",`)
 	head, err := json.Marshal(struct {
-		Frame  string         `json:"coordinate_frame"`
-		Note   string         `json:"coordinate_note,omitempty"`
-		Origin *Origin        `json:"local_origin,omitempty"`
-		Depth  DepthReference `json:"depth_reference"`
-	}{fc.Frame, fc.Note, fc.Origin, d.DepthReference})
+		Cautions []string       `json:"cautions"`
+		Frame    string         `json:"coordinate_frame"`
+		Note     string         `json:"coordinate_note,omitempty"`
+		Origin   *Origin        `json:"local_origin,omitempty"`
+		Depth    DepthReference `json:"depth_reference"`
+	}{Cautions, fc.Frame, fc.Note, fc.Origin, d.DepthReference})
 	if err != nil {
 		return fmt.Errorf("report: GeoJSON: %w", err)
 	}

@@ -239,9 +239,10 @@ func settingRows(set map[string]string) [][2]string {
 
 func depthRefText(d *Document) string {
 	if d.DepthReference.Kind == DepthBelowGround {
-		return fmt.Sprintf("below the ground surface given (up = %.2f m)", d.DepthReference.Z)
+		return fmt.Sprintf("below the ground surface given (up = %s m)", fix(d.DepthReference.Z, 2))
 	}
-	s := fmt.Sprintf("below the sensors' mean height (up = %.2f m)", d.DepthReference.Z)
+	// fix: a mean height of -1e-17 m reads "0.00", not "-0.00".
+	s := fmt.Sprintf("below the sensors' mean height (up = %s m)", fix(d.DepthReference.Z, 2))
 	if h := d.DepthReference.SensorHeight; h > 0 {
 		s += fmt.Sprintf("; sensors %.2f m above ground, so cover = depth − %.2f m", h, h)
 	} else {
@@ -359,7 +360,10 @@ func (v *view) where(f Finding) string {
 }
 
 func (v *view) groupRow(g *Group) groupRow {
-	r := groupRow{Key: g.Key, Points: fmt.Sprint(g.Points), RMS: num(g.RMS), Bad: !g.OK || g.Problem != ""}
+	r := groupRow{Key: g.Key, Points: fmt.Sprint(g.Points), RMS: "–", Bad: !g.OK || g.Problem != ""}
+	if rms, ok := GroupRMS(g); ok {
+		r.RMS = rms
+	}
 	if r.Key == "" {
 		r.Key = "(all)"
 	}
@@ -763,7 +767,9 @@ func ChainageZero(d *Document) string {
 	if lon, lat, ok := d.wgs84(p); ok {
 		where += " (" + latLon(lat, lon, 6) + ")"
 	}
-	bearing := math.Mod(math.Atan2(dir[0], dir[1])*180/math.Pi+360, 360)
+	// Rounded to the degree first, then taken round: 359.98° reads 0°,
+	// not 360°.
+	bearing := math.Mod(math.Round(math.Atan2(dir[0], dir[1])*180/math.Pi)+360, 360)
 	return fmt.Sprintf("Chainage 0 is where the fitted conductor crosses the first traverse along the route, %s, at %s; "+
 		"chainage increases from there towards %s, setting off %.0f° from north (%s), "+
 		"and is measured along the fitted route, not from the survey's pegs or marks.",

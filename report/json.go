@@ -9,12 +9,15 @@ import (
 )
 
 // WriteJSON writes d as indented JSON followed by a newline, after
-// checking it with Validate. Field names are stable: see Document.
+// checking it with Validate. Field names are stable: see Document. The
+// first member, "cautions", is Cautions, the safety cautions every crew
+// report carries, so that a program or person reading results.json alone
+// has them too; ReadJSON ignores it (they are the writer's, not the fit's).
 func WriteJSON(w io.Writer, d *Document) error {
 	if err := d.Validate(); err != nil {
 		return err
 	}
-	b, err := json.MarshalIndent(d.normalized(), "", "  ")
+	b, err := json.MarshalIndent(jsonDocument{Cautions: Cautions, Document: d.normalized()}, "", "  ")
 	if err != nil {
 		return fmt.Errorf("report: %w", err)
 	}
@@ -53,6 +56,13 @@ func ReadJSON(r io.Reader, name string) (*Document, error) {
 		return nil, fmt.Errorf("%w (in %s)", err, name)
 	}
 	return &d, nil
+}
+
+// jsonDocument is a Document as results.json holds it: the cautions
+// first, then the document's own members.
+type jsonDocument struct {
+	Cautions []string `json:"cautions"`
+	*Document
 }
 
 // lineCol turns the offset the JSON decoder reports (the number of bytes

@@ -1076,21 +1076,52 @@ func alongPlot(d *Document, r *Route, conductor int, which string, narrow bool) 
 		}
 		padY(p, 0.05, 0.08)
 	}
-	// Mark current steps between their stations.
+	// Mark current steps where their findings place them.
 	if which == "current" {
 		padY(p, 0.05, 0.1)
+		lo, hi := p.Y.Min, p.Y.Max
 		for _, f := range d.Findings {
 			if f.Kind != "current-step" || f.Conductor != conductor {
 				continue
 			}
-			m := (f.ChainageFrom + f.ChainageTo) / 2
-			lo, hi := p.Y.Min, p.Y.Max
-			if _, err := polyline(p, xy{[]float64{m, m}, []float64{lo, hi}}, colWarning, 1, 4, 3); err != nil {
+			at, sigma := stepMark(&f)
+			if sigma > 0 {
+				// The step's one-sigma band, clipped to the route.
+				a, b := math.Max(at-sigma, 0), math.Min(at+sigma, r.Length)
+				if b > a {
+					band, err := plotter.NewPolygon(plotter.XYs{{X: a, Y: lo}, {X: b, Y: lo}, {X: b, Y: hi}, {X: a, Y: hi}})
+					if err != nil {
+						return nil, err
+					}
+					band.Color = colStepBand
+					band.LineStyle.Width = 0
+					p.Add(band)
+				}
+			}
+			if _, err := polyline(p, xy{[]float64{at, at}, []float64{lo, hi}}, colWarning, 1, 4, 3); err != nil {
 				return nil, err
 			}
 		}
 	}
 	return p, nil
+}
+
+// colStepBand shades a current step's one-sigma band of chainage: the
+// step line's colour, mostly transparent, so that the stations' bars show
+// through it.
+var colStepBand = color.NRGBA{0xb3, 0x26, 0x1e, 0x30}
+
+// stepMark is where the current plot marks step finding f: at its most
+// likely chainage with that chainage's one-sigma uncertainty, the finding's
+// "location (chainage)" value (route.Finding), when it has one; else
+// midway between the stations either side of the step, with no sigma.
+func stepMark(f *Finding) (at, sigma float64) {
+	for _, v := range f.Values {
+		if v.Name == "location (chainage)" && !math.IsNaN(v.Value) && !math.IsInf(v.Value, 0) {
+			return v.Value, v.Sigma
+		}
+	}
+	return (f.ChainageFrom + f.ChainageTo) / 2, 0
 }
 
 // padY widens the y range by the fractions lo and hi of its span at the

@@ -125,7 +125,7 @@ footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rul
 {{if .Current}}<section>
 <h2>Along the route</h2>
 <figure>{{.Current}}
-<figcaption>Fitted current per group with ± two standard deviations; dashed red lines mark steps in current (current leaving or joining the conductor). Current is signed along the route's direction of increasing chainage.</figcaption>
+<figcaption>Fitted current per group with ± two standard deviations; dashed red lines mark steps in current (current leaving or joining the conductor) at their most likely chainage, shaded ± one standard deviation, or midway between the stations either side where a finding gives no such chainage. Current is signed along the route's direction of increasing chainage.</figcaption>
 </figure>
 <figure>{{.Depth}}
 <figcaption>Fitted depth per group with ± two standard deviations. Depth is {{.DepthRef}}.{{with .DepthNote}} {{.}}{{end}}</figcaption>
@@ -137,7 +137,7 @@ footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rul
 <h2>Conductor {{.Number}} along the route</h2>
 <p>{{.Lead}} Its findings are listed in the summary, marked “conductor {{.Number}}”. Chainage here is measured along conductor {{.Number}} from its first station.</p>
 <figure>{{.Current}}
-<figcaption>Fitted current of conductor {{.Number}} per group with ± two standard deviations; dashed red lines mark its steps in current. Current is signed along the direction of increasing chainage.</figcaption>
+<figcaption>Fitted current of conductor {{.Number}} per group with ± two standard deviations; dashed red lines mark its steps in current at their most likely chainage, shaded ± one standard deviation, or midway between the stations either side where a finding gives no such chainage. Current is signed along the direction of increasing chainage.</figcaption>
 </figure>
 <figure>{{.Depth}}
 <figcaption>Fitted depth of conductor {{.Number}} per group with ± two standard deviations. Depth is {{$.DepthRef}}.{{with $.DepthNote}} {{.}}{{end}}</figcaption>

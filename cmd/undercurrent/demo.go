@@ -132,7 +132,8 @@ func runDemo(ctx context.Context, out string, stdout, progress io.Writer) error 
 	return nil
 }
 
-// printFindings prints a short account of a result document.
+// printFindings prints a short account of a result document, then the
+// cautions.
 func printFindings(w io.Writer, doc *report.Document) {
 	sound, _ := soundGroups(doc)
 	fmt.Fprintf(w, "located: %d of %d traverses fitted soundly", sound, len(doc.Groups))
@@ -158,6 +159,7 @@ func printFindings(w io.Writer, doc *report.Document) {
 	for _, wn := range doc.Warnings {
 		fmt.Fprintf(w, "note: %s\n", wn)
 	}
+	printCautions(w)
 }
 
 // soundGroups counts the groups whose fit is sound: converged, with no

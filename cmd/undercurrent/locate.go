@@ -1715,7 +1715,8 @@ func pairColumns(g *report.Group, i int) (cur, dep string, ok bool) {
 	return "", "", false
 }
 
-// printSummary prints the groups and findings for a person.
+// printSummary prints the groups and findings for a person, then the
+// cautions.
 func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 	ok, readings := soundGroups(doc)
 	unit := "readings"
@@ -1763,8 +1764,14 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 		if g.Chainage != nil {
 			ch = fmt.Sprintf("%.1f m", *g.Chainage)
 		}
+		// The rms as the crew report's table gives it, "-" when the fit
+		// estimated none (not 0, which would read as a perfect fit).
+		rms, has := report.GroupRMS(&g)
+		if !has {
+			rms = "-"
+		}
 		if len(g.Sources) == 0 {
-			fmt.Fprintf(w, "%-8s %10s %*s %*s %9.3g  %s\n", key, ch, cw, "-", dw, "-", g.RMS, g.Problem)
+			fmt.Fprintf(w, "%-8s %10s %*s %*s %9s  %s\n", key, ch, cw, "-", dw, "-", rms, g.Problem)
 			continue
 		}
 		for i, s := range g.Sources {
@@ -1794,7 +1801,7 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 				}
 				note = fmt.Sprintf(" %9s", c) + note
 			}
-			fmt.Fprintf(w, "%-8s %10s %*s %*s %9.3g%s\n", k, ch, cw, cur, dw, dep, g.RMS, note)
+			fmt.Fprintf(w, "%-8s %10s %*s %*s %9s%s\n", k, ch, cw, cur, dw, dep, rms, note)
 		}
 	}
 	if doc.Route != nil && doc.Route.PairNet {
@@ -1821,6 +1828,17 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 	}
 	for _, wn := range doc.Warnings {
 		fmt.Fprintf(w, "warning: %s\n", wn)
+	}
+	printCautions(w)
+}
+
+// printCautions prints the safety cautions every crew report carries
+// (report.Cautions), after the findings, so that a crew reading only the
+// terminal has them too.
+func printCautions(w io.Writer) {
+	fmt.Fprintln(w, "cautions:")
+	for _, c := range report.Cautions {
+		fmt.Fprintf(w, "  %s\n", c)
 	}
 }
 
