@@ -52,6 +52,9 @@ type plan struct {
 	// group column), the first of them at groupEmptyAt (see noteGroups).
 	groupRows, groupEmpty int64
 	groupEmptyAt          string
+	// frameStated: inFrame was given (WithFrame) or stated by the input's
+	// metadata (MetaFrame, IAGA-2002's elements), not assumed.
+	frameStated bool
 }
 
 // checkTimeUnit looks at the first time of the input (t, NaN for none in
@@ -161,6 +164,18 @@ func Warnings(r Reader) []string {
 	return nil
 }
 
+// InputFrame returns the frame of the input's own columns as a reader of
+// this package takes them (WithFrame, else the input's metadata, else
+// FrameENU; FrameNED is turned to east, north, up on reading), and whether
+// it was given or stated by the input rather than assumed. ok is false for
+// readers of other packages.
+func InputFrame(r Reader) (f Frame, stated, ok bool) {
+	if p := planOf(r); p != nil {
+		return p.inFrame, p.frameStated, true
+	}
+	return FrameENU, false, false
+}
+
 // ColumnMapping describes where one canonical column came from.
 type ColumnMapping struct {
 	Column string  `json:"column"` // canonical name
@@ -256,16 +271,23 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 	}
 	// Metadata from an earlier conversion.
 	frame := FrameENU
+	var fileFrame *Frame // the frame the file's metadata states
 	var carried []string // MetaAbsent of an earlier conversion
 	for k, v := range meta {
 		switch {
 		case k == MetaAbsent:
 			carried = strings.Fields(v)
 		case k == MetaFrame:
+			// The file states the axes of its columns: an earlier
+			// conversion's "enu" or "sensor", or a logger's (or a user's)
+			// "# undercurrent.frame: ned" line, which is read as --frame
+			// ned is. A value that names no frame is refused rather than
+			// read as ENU.
 			f, err := ParseFrame(v)
-			if err == nil && f != FrameNED {
-				frame = f
+			if err != nil {
+				return nil, fileErr(file, nil, "its metadata %s is %q, which names no frame (want enu, ned or sensor): correct it, or give the frame with WithFrame (on the command line --frame)", MetaFrame, v)
 			}
+			frame, fileFrame, p.frameStated = f, &f, true
 		case k == MetaOrigin:
 			var g Geodetic
 			if _, err := fmt.Sscanf(v, "%g %g %g", &g.Lat, &g.Lon, &g.H); err == nil {
@@ -276,7 +298,11 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 		}
 	}
 	if cfg.frameSet {
-		frame = cfg.frame
+		if fileFrame != nil && *fileFrame != cfg.frame {
+			p.warn("%s: its metadata (%s) says its columns are %s, but they are read as %s, as the frame given says (WithFrame, on the command line --frame)",
+				file, MetaFrame, frameWords(*fileFrame), frameWords(cfg.frame))
+		}
+		frame, p.frameStated = cfg.frame, true
 	}
 	p.inFrame = frame
 
@@ -327,6 +353,7 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 			taken[i] = true
 		}
 	}
+	p.checkAttitude()
 	if err := p.checkCompassMapping(headerLine); err != nil {
 		return nil, err
 	}
@@ -450,6 +477,49 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 	p.orderAll = !cfg.allowBackwards && !p.orderGroup && !p.noTime
 	p.buildSchema()
 	return p, nil
+}
+
+// frameWords names the axes of a frame for messages.
+func frameWords(f Frame) string {
+	switch f {
+	case FrameNED:
+		return "north, east, down (ned)"
+	case FrameSensor:
+		return "in the sensor's own axes (sensor)"
+	}
+	return "east, north, up (enu)"
+}
+
+// checkAttitude warns when the input has attitude columns (roll, pitch,
+// yaw or a quaternion) but is not read in the sensor frame: only a
+// sensor-frame log is turned to east, north, up by its attitude, so the
+// columns are read and nothing applies them. A log whose field is in the
+// sensor's axes then has every reading in the wrong axes (its east
+// component swings by the whole Earth's field as the heading turns), and
+// nothing else says why.
+func (p *plan) checkAttitude() {
+	if p.inFrame == FrameSensor {
+		return
+	}
+	var names []string
+	for c := cRoll; c <= cQz; c++ {
+		if p.src[c] >= 0 {
+			names = append(names, p.header[p.src[c]])
+		}
+	}
+	if len(names) == 0 {
+		return
+	}
+	how := "as the frame given says"
+	if !p.frameStated {
+		how = "the default"
+	}
+	what := "columns"
+	if len(names) == 1 {
+		what = "column"
+	}
+	p.warn("%s: attitude %s %s: read but not applied, since the field is read as %s (%s): if bx, by, bz are in the sensor's own axes, read the log in the sensor frame (WithFrame(FrameSensor), on the command line --frame sensor) so that the attitude turns them to east, north, up; if they already are east, north, up, the attitude is not needed",
+		p.file, what, strings.Join(names, ", "), frameWords(p.inFrame), how)
 }
 
 // groupBackwards checks the time order within groups of an output batch

@@ -327,6 +327,12 @@ func readCalibrationLog(ctx context.Context, rf *readFlags, opts []ingest.Option
 	if err != nil {
 		return nil, calibrate.Input{}, nil, err
 	}
+	// A log whose own "# undercurrent.frame: ned" line turned it to east,
+	// north, up: the calibration would be made in the turned axes, and
+	// locate, which turns it for such a log, would turn it twice.
+	if s.InFrame == ingest.FrameNED {
+		return nil, calibrate.Input{}, nil, fmt.Errorf("%s: its metadata (%s) says its columns are north, east, down, so they were read turned to east, north, up; a calibration is made in the sensor's own axes, the bx, by, bz columns as the file has them (locate applies it there before it turns a log read as ned): give --frame enu to read them as they are", path, ingest.MetaFrame)
+	}
 	if name := calibrate.SensorName(s); name != "" {
 		if *sensor != "" && *sensor != name {
 			return nil, calibrate.Input{}, nil, fmt.Errorf("%s names sensor %q, but the other log names %q: a calibration is for one sensor", path, name, *sensor)

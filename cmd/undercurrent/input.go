@@ -306,6 +306,7 @@ func readSamples(ctx context.Context, path string, opts ...ingest.Option) (*inge
 		return nil, err
 	}
 	s.Warnings = ingest.Warnings(r) // the wrapper hides them from Collect
+	s.InFrame, s.InFrameStated, _ = ingest.InputFrame(r)
 	s.Source = path
 	return s, nil
 }
@@ -503,6 +504,8 @@ func cliWording(s string) string {
 	s = strings.ReplaceAll(s, "(try units ", "(try --unit ")
 	s = strings.ReplaceAll(s, "(try columns ", "(try --column ")
 	s = strings.ReplaceAll(s, "the option WithDecimalComma(true), on the command line --decimal-comma", "--decimal-comma")
+	s = strings.ReplaceAll(s, "(WithFrame(FrameSensor), on the command line --frame sensor)", "(--frame sensor)")
+	s = strings.ReplaceAll(s, "(WithFrame, on the command line --frame)", "(--frame)")
 	s = mappingHint.ReplaceAllString(s, "with --column $1=NAME")
 	return singleBatch.ReplaceAllString(s, "${1}1 record batch$2")
 }
