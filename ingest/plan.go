@@ -361,6 +361,10 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 		if _, u := SplitUnit(header[p.src[c]]); u != "" {
 			if _, err := unitScale(kindOf(c), u); err == nil {
 				unitFromName[c] = u
+			} else if _, given := cfg.units[c]; !given && kindOf(c) == kindField {
+				if err := p.unknownNameUnit(c, headerLine); err != nil {
+					return nil, err
+				}
 			}
 		}
 	}
@@ -477,6 +481,46 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 	p.orderAll = !cfg.allowBackwards && !p.orderGroup && !p.noTime
 	p.buildSchema()
 	return p, nil
+}
+
+// unknownNameUnit refuses a field column mapped by name (c) whose name
+// states a unit that is not read: a bracketed one ("Bx [mgauss]" before it
+// was read, "Bx [0.1 nT]"), a known unit in another case ("Bx_MT": mT or
+// megatesla?) or a known unit followed by more ("Bx_nT_x10"). Read as nT,
+// the default, such a column's values would be off by the unit's factor
+// without a word. A name whose last word is no unit ("mag_x", "Field X")
+// states none and is read in nT as before.
+func (p *plan) unknownNameUnit(c, headerLine int) error {
+	name := strings.TrimSpace(p.header[p.src[c]])
+	_, u := SplitUnit(name)
+	bracketed := strings.HasSuffix(name, ")") || strings.HasSuffix(name, "]")
+	unitWord := func(w string) bool {
+		if _, err := unitScale(kindField, w); err == nil {
+			return true
+		}
+		for _, k := range []string{"nT", "pT", "uT", "mT", "T", "G", "mG", "Oe"} {
+			if strings.EqualFold(w, k) {
+				return true
+			}
+		}
+		return false
+	}
+	stated := bracketed || unitWord(u)
+	if !stated {
+		words := strings.FieldsFunc(name, func(r rune) bool { return r == '_' || r == ' ' })
+		for i := 1; i+1 < len(words) && !stated; i++ {
+			if stated = unitWord(words[i]); stated {
+				// "nT_x10": the unit and what follows it.
+				u = name[strings.LastIndex(name, words[i]):]
+			}
+		}
+	}
+	if !stated {
+		return nil
+	}
+	return &Error{File: p.file, Line: headerLine, Batch: -1, Column: name,
+		Msg: fmt.Sprintf("its name (mapped to %s) states the unit %q, which is not a field unit read here (nT, pT, uT, mT, T, G or gauss, mG or milligauss, Oe): read as nT by default, its values would be off by that unit's factor; give the column's unit with a unit option %s=U (on the command line --unit %s=U), or name the unit in the column's name as %s_uT does",
+			canonNames[c], u, canonNames[c], canonNames[c], canonNames[c])}
 }
 
 // frameWords names the axes of a frame for messages.

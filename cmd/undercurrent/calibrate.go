@@ -301,12 +301,15 @@ func zeroUnitStated(path string, opts []ingest.Option, offset [3]float64) error 
 	if src := strings.Join(srcs, ", "); src != what {
 		what = src + ", read as " + what
 	}
-	var flag []string
+	// The names suggested are built from the axes (bx_nT), not from
+	// the columns' own names, which may hold words of their own.
+	var flag, named []string
 	for _, c := range cols {
 		flag = append(flag, c+"=U")
+		named = append(named, c+"_nT")
 	}
-	return usageErrorf("%s: the field columns (%s) state no unit, and a log inside a shield reads near zero in any unit: read as nT its offset is %.4g, %.4g, %.4g nT, written in µT it would be 1000 times that. Give the unit with --unit %s, U the unit the log is written in (%s), or put it in the column names (%s_nT)",
-		path, what, offset[0], offset[1], offset[2], strings.Join(flag, ","), fieldUnits, srcs[0])
+	return usageErrorf("%s: the field columns (%s) state no unit, and a log inside a shield reads near zero in any unit: read as nT its offset is %.4g, %.4g, %.4g nT, written in µT it would be 1000 times that. Give the unit with --unit %s, U the unit the log is written in (%s), or put it in the column names (%s)",
+		path, what, offset[0], offset[1], offset[2], strings.Join(flag, ","), fieldUnits, strings.Join(named, ", "))
 }
 
 // inFile names path in an error from the calibrate package, whose own
