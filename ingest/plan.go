@@ -357,7 +357,10 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 	if err := p.checkCompassMapping(headerLine); err != nil {
 		return nil, err
 	}
-	for c := range cfg.mapping {
+	for c := range nCanon { // in order, so that the first column is named
+		if _, mapped := cfg.mapping[c]; !mapped {
+			continue
+		}
 		if _, u := SplitUnit(header[p.src[c]]); u != "" {
 			if _, err := unitScale(kindOf(c), u); err == nil {
 				unitFromName[c] = u

@@ -507,11 +507,15 @@ func cliWording(s string) string {
 	s = strings.ReplaceAll(s, "(WithFrame(FrameSensor), on the command line --frame sensor)", "(--frame sensor)")
 	s = strings.ReplaceAll(s, "(WithFrame, on the command line --frame)", "(--frame)")
 	s = mappingHint.ReplaceAllString(s, "with --column $1=NAME")
+	s = unitHint.ReplaceAllString(s, "--unit $1=U")
 	return singleBatch.ReplaceAllString(s, "${1}1 record batch$2")
 }
 
 // mappingHint matches ingest's advice to map a missing column, naming it.
 var mappingHint = regexp.MustCompile(`with a column mapping such as ([a-z]+)=NAME, on the command line --column [a-z]+=NAME`)
+
+// unitHint matches ingest's advice to give a column's unit.
+var unitHint = regexp.MustCompile(`a unit option ([a-z]+)=U \(on the command line --unit [a-z]+=U\)`)
 
 // singleBatch matches "1 record batches" (and not "11 record batches").
 var singleBatch = regexp.MustCompile(`(^|[^0-9.])1 record batches($|[^A-Za-z])`)
