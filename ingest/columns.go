@@ -38,7 +38,7 @@ const (
 // Schema metadata keys written by this package so that a frame, an origin
 // and header fields survive a conversion between formats.
 const (
-	MetaFrame  = "undercurrent.frame"  // "enu" or "sensor"
+	MetaFrame  = "undercurrent.frame"  // "enu" or "sensor" as written; "ned" is read too (turned to ENU)
 	MetaOrigin = "undercurrent.origin" // "lat lon h" (degrees, degrees, metres)
 	MetaPrefix = "undercurrent.meta."  // + key of Samples.Meta
 	// MetaTime is "absent" in the schema of a log read without a time

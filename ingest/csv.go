@@ -568,17 +568,35 @@ func decimalPointText(t []byte) bool {
 // messages (the command line's flag replaces it).
 const decimalCommaOption = "the option WithDecimalComma(true), on the command line --decimal-comma"
 
-// decimalCommaText reports whether t is [sign] digits "," digits.
+// decimalCommaText reports whether t is [sign] digits "," digits,
+// possibly with an exponent ("1,529340E-06", as spreadsheets in
+// decimal-comma locales write scientific notation): a number written with
+// a decimal comma.
 func decimalCommaText(t []byte) bool {
 	if len(t) > 0 && (t[0] == '-' || t[0] == '+') {
 		t = t[1:]
+	}
+	if e := bytes.IndexAny(t, "eE"); e >= 0 {
+		x := t[e+1:]
+		if len(x) > 0 && (x[0] == '-' || x[0] == '+') {
+			x = x[1:]
+		}
+		if len(x) == 0 || !allDigits(x) {
+			return false
+		}
+		t = t[:e]
 	}
 	i := bytes.IndexByte(t, ',')
 	if i <= 0 || i == len(t)-1 {
 		return false
 	}
-	for k, c := range t {
-		if k != i && (c < '0' || c > '9') {
+	return allDigits(t[:i]) && allDigits(t[i+1:])
+}
+
+// allDigits reports whether t holds ASCII digits only.
+func allDigits(t []byte) bool {
+	for _, c := range t {
+		if c < '0' || c > '9' {
 			return false
 		}
 	}
@@ -825,7 +843,7 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch, plain bool) 
 					}
 					if r.decComma {
 						what += " (the file is read with decimal commas, so a point is not a decimal point)"
-					} else if r.delim != ',' && decimalCommaText(t) {
+					} else if r.delim != ',' && bytes.IndexByte(t, ',') >= 0 {
 						what += " (a decimal comma? read the file with decimal commas: " + decimalCommaOption + ")"
 					}
 					if _, err := unitScale(kindOf(u.c), string(t)); err == nil && len(t) > 0 {

@@ -57,6 +57,10 @@ type iagaReader struct {
 	rb       rawBatch
 	done     bool
 	pending  []byte // first data line, read while looking for the header
+	// width is the length of every data line read so far (IAGA-2002
+	// records are fixed-width, 70 characters), 0 before the first, -1
+	// once two differ.
+	width int
 	// baseline is the baseline declination (radians east) by which variation
 	// data in H D Z or H E Z are turned to geographic axes; 0 when they are
 	// not (set from the header in newIAGAReader).
@@ -331,9 +335,25 @@ func (r *iagaReader) Next() bool {
 			}
 			continue
 		}
+		// A copy cut short ends inside its last record, without the line
+		// end every other record has: its last value would be read cut
+		// (F = 523 for 52382.xx). IAGA-2002 records are fixed-width
+		// (the IAGA-2002 format description of IAGA Division V-DAT: 70 characters
+		// and a line end), so a last line shorter than the lines before
+		// it, all of one width, is the cut.
+		if err == io.EOF && r.width > 0 && len(ln) < r.width {
+			r.err = lineErr(r.name, r.line, "", string(ln), "the file ends inside this IAGA-2002 data line: it has %d characters and no line end, where every data line before it has %d (the format's records are fixed-width): a copy cut short, whose last value would be read cut; get the whole file, or delete this line to read the rest", len(ln), r.width)
+			break
+		}
 		if e := r.parseRow(ln, rb, hasF); e != nil {
 			r.err = e
 			break
+		}
+		switch {
+		case r.width == 0:
+			r.width = len(ln)
+		case r.width != len(ln):
+			r.width = -1
 		}
 		if len(raw) > 0 && err != nil {
 			break

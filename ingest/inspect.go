@@ -256,14 +256,28 @@ func guessUnits(pl *plan, in *Inspection, mags []float64) []string {
 		m := median(mags) // nT
 		if m < earthMin || m > earthMax {
 			raw := m / pl.scale[cBx]
-			for _, u := range []string{"T", "mT", "G", "uT", "nT", "pT"} {
+			found := false
+			// mG (1 mG = 100 nT) is a unit the readers accept; a log in
+			// it read as nT sits at 150-800, below the band.
+			for _, u := range []string{"T", "mT", "G", "uT", "mG", "nT", "pT"} {
 				f, _ := unitScale(kindField, u)
 				if u != pl.unit[cBx] && raw*f >= earthMin && raw*f <= earthMax {
 					w = append(w, fmt.Sprintf("field: median |B| is %.4g %s, outside the Earth's field band of 15000-80000 nT; "+
 						"if these are total-field readings the columns are probably in %s (try units bx=%s,by=%s,bz=%s)",
 						raw, pl.unit[cBx], u, u, u, u))
+					found = true
 					break
 				}
+			}
+			if !found {
+				// No unit explains it: the Earth's field removed, or a
+				// unit or scale the readers do not know.
+				in := ""
+				if pl.unit[cBx] != "nT" {
+					in = fmt.Sprintf(" (%.4g %s)", raw, pl.unit[cBx])
+				}
+				w = append(w, fmt.Sprintf("field: median |B| is %.4g nT%s, outside the Earth's field band of 15000-80000 nT, and in none of the units T, mT, G, uT, mG, nT, pT would it fall inside: right for a log with the Earth's field removed; otherwise the field columns' unit or scale is wrong (try units bx=U,by=U,bz=U)",
+					m, in))
 			}
 		}
 	}

@@ -52,6 +52,9 @@ type plan struct {
 	// group column), the first of them at groupEmptyAt (see noteGroups).
 	groupRows, groupEmpty int64
 	groupEmptyAt          string
+	// frameStated: inFrame was given (WithFrame) or stated by the input's
+	// metadata (MetaFrame, IAGA-2002's elements), not assumed.
+	frameStated bool
 }
 
 // checkTimeUnit looks at the first time of the input (t, NaN for none in
@@ -161,6 +164,18 @@ func Warnings(r Reader) []string {
 	return nil
 }
 
+// InputFrame returns the frame of the input's own columns as a reader of
+// this package takes them (WithFrame, else the input's metadata, else
+// FrameENU; FrameNED is turned to east, north, up on reading), and whether
+// it was given or stated by the input rather than assumed. ok is false for
+// readers of other packages.
+func InputFrame(r Reader) (f Frame, stated, ok bool) {
+	if p := planOf(r); p != nil {
+		return p.inFrame, p.frameStated, true
+	}
+	return FrameENU, false, false
+}
+
 // ColumnMapping describes where one canonical column came from.
 type ColumnMapping struct {
 	Column string  `json:"column"` // canonical name
@@ -256,16 +271,23 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 	}
 	// Metadata from an earlier conversion.
 	frame := FrameENU
+	var fileFrame *Frame // the frame the file's metadata states
 	var carried []string // MetaAbsent of an earlier conversion
 	for k, v := range meta {
 		switch {
 		case k == MetaAbsent:
 			carried = strings.Fields(v)
 		case k == MetaFrame:
+			// The file states the axes of its columns: an earlier
+			// conversion's "enu" or "sensor", or a logger's (or a user's)
+			// "# undercurrent.frame: ned" line, which is read as --frame
+			// ned is. A value that names no frame is refused rather than
+			// read as ENU.
 			f, err := ParseFrame(v)
-			if err == nil && f != FrameNED {
-				frame = f
+			if err != nil {
+				return nil, fileErr(file, nil, "its metadata %s is %q, which names no frame (want enu, ned or sensor): correct it, or give the frame with WithFrame (on the command line --frame)", MetaFrame, v)
 			}
+			frame, fileFrame, p.frameStated = f, &f, true
 		case k == MetaOrigin:
 			var g Geodetic
 			if _, err := fmt.Sscanf(v, "%g %g %g", &g.Lat, &g.Lon, &g.H); err == nil {
@@ -276,7 +298,11 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 		}
 	}
 	if cfg.frameSet {
-		frame = cfg.frame
+		if fileFrame != nil && *fileFrame != cfg.frame {
+			p.warn("%s: its metadata (%s) says its columns are %s, but they are read as %s, as the frame given says (WithFrame, on the command line --frame)",
+				file, MetaFrame, frameWords(*fileFrame), frameWords(cfg.frame))
+		}
+		frame, p.frameStated = cfg.frame, true
 	}
 	p.inFrame = frame
 
@@ -327,13 +353,21 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 			taken[i] = true
 		}
 	}
+	p.checkAttitude()
 	if err := p.checkCompassMapping(headerLine); err != nil {
 		return nil, err
 	}
-	for c := range cfg.mapping {
+	for c := range nCanon { // in order, so that the first column is named
+		if _, mapped := cfg.mapping[c]; !mapped {
+			continue
+		}
 		if _, u := SplitUnit(header[p.src[c]]); u != "" {
 			if _, err := unitScale(kindOf(c), u); err == nil {
 				unitFromName[c] = u
+			} else if _, given := cfg.units[c]; !given && kindOf(c) == kindField {
+				if err := p.unknownNameUnit(c, headerLine); err != nil {
+					return nil, err
+				}
 			}
 		}
 	}
@@ -450,6 +484,89 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 	p.orderAll = !cfg.allowBackwards && !p.orderGroup && !p.noTime
 	p.buildSchema()
 	return p, nil
+}
+
+// unknownNameUnit refuses a field column mapped by name (c) whose name
+// states a unit that is not read: a bracketed one ("Bx [mgauss]" before it
+// was read, "Bx [0.1 nT]"), a known unit in another case ("Bx_MT": mT or
+// megatesla?) or a known unit followed by more ("Bx_nT_x10"). Read as nT,
+// the default, such a column's values would be off by the unit's factor
+// without a word. A name whose last word is no unit ("mag_x", "Field X")
+// states none and is read in nT as before.
+func (p *plan) unknownNameUnit(c, headerLine int) error {
+	name := strings.TrimSpace(p.header[p.src[c]])
+	_, u := SplitUnit(name)
+	bracketed := strings.HasSuffix(name, ")") || strings.HasSuffix(name, "]")
+	unitWord := func(w string) bool {
+		if _, err := unitScale(kindField, w); err == nil {
+			return true
+		}
+		for _, k := range []string{"nT", "pT", "uT", "mT", "T", "G", "mG", "Oe"} {
+			if strings.EqualFold(w, k) {
+				return true
+			}
+		}
+		return false
+	}
+	stated := bracketed || unitWord(u)
+	if !stated {
+		words := strings.FieldsFunc(name, func(r rune) bool { return r == '_' || r == ' ' })
+		for i := 1; i+1 < len(words) && !stated; i++ {
+			if stated = unitWord(words[i]); stated {
+				// "nT_x10": the unit and what follows it.
+				u = name[strings.LastIndex(name, words[i]):]
+			}
+		}
+	}
+	if !stated {
+		return nil
+	}
+	return &Error{File: p.file, Line: headerLine, Batch: -1, Column: name,
+		Msg: fmt.Sprintf("its name (mapped to %s) states the unit %q, which is not a field unit read here (nT, pT, uT, mT, T, G or gauss, mG or milligauss, Oe): read as nT by default, its values would be off by that unit's factor; give the column's unit with a unit option %s=U (on the command line --unit %s=U), or name the unit in the column's name as %s_uT does",
+			canonNames[c], u, canonNames[c], canonNames[c], canonNames[c])}
+}
+
+// frameWords names the axes of a frame for messages.
+func frameWords(f Frame) string {
+	switch f {
+	case FrameNED:
+		return "north, east, down (ned)"
+	case FrameSensor:
+		return "in the sensor's own axes (sensor)"
+	}
+	return "east, north, up (enu)"
+}
+
+// checkAttitude warns when the input has attitude columns (roll, pitch,
+// yaw or a quaternion) but is not read in the sensor frame: only a
+// sensor-frame log is turned to east, north, up by its attitude, so the
+// columns are read and nothing applies them. A log whose field is in the
+// sensor's axes then has every reading in the wrong axes (its east
+// component swings by the whole Earth's field as the heading turns), and
+// nothing else says why.
+func (p *plan) checkAttitude() {
+	if p.inFrame == FrameSensor {
+		return
+	}
+	var names []string
+	for c := cRoll; c <= cQz; c++ {
+		if p.src[c] >= 0 {
+			names = append(names, p.header[p.src[c]])
+		}
+	}
+	if len(names) == 0 {
+		return
+	}
+	how := "as the frame given says"
+	if !p.frameStated {
+		how = "the default"
+	}
+	what := "columns"
+	if len(names) == 1 {
+		what = "column"
+	}
+	p.warn("%s: attitude %s %s: read but not applied, since the field is read as %s (%s): if bx, by, bz are in the sensor's own axes, read the log in the sensor frame (WithFrame(FrameSensor), on the command line --frame sensor) so that the attitude turns them to east, north, up; if they already are east, north, up, the attitude is not needed",
+		p.file, what, strings.Join(names, ", "), frameWords(p.inFrame), how)
 }
 
 // groupBackwards checks the time order within groups of an output batch

@@ -38,6 +38,14 @@ type Samples struct {
 	// Warnings are the reader's warnings (see Warnings): problems with the
 	// input that did not stop the reading. Callers should show them.
 	Warnings []string
+	// InFrame is the frame of the input's own columns as the reader took
+	// it: FrameNED for a log turned from north, east, down to east,
+	// north, up on reading (WithFrame(FrameNED), or the file's
+	// "undercurrent.frame: ned" metadata). InFrameStated: the frame was
+	// given or stated by the input, not assumed. Set by Collect for
+	// readers of this package.
+	InFrame       Frame
+	InFrameStated bool
 }
 
 // Len returns the number of rows.
@@ -105,6 +113,7 @@ func Collect(r Reader) (*Samples, error) {
 	s := &Samples{Meta: map[string]string{}}
 	if p := planOf(r); p != nil {
 		s.Source = p.file
+		s.InFrame, s.InFrameStated = p.inFrame, p.frameStated
 	}
 	applySchemaMeta(s, sc)
 	for r.Next() {

@@ -22,10 +22,27 @@ func unitScale(k kind, u string) (float64, error) {
 			return 1e6, nil
 		case "T", "t":
 			return 1e9, nil
-		case "G", "g", "gauss", "Gauss":
+		case "G", "g":
 			return 1e5, nil
 		case "mG", "mg":
 			return 1e2, nil
+		case "Oe", "oe":
+			// The oersted is the CGS unit of H, 1 Oe = 1000/(4π) A/m
+			// (BIPM, SI Brochure, 8th ed., 2006, Table 9), and a field
+			// written in Oe is B = µ0 H in free space (air): µ0 =
+			// 4π·10⁻⁷ N/A² (to 1e-9 since the 2019 SI, CODATA 2018)
+			// gives 10⁻⁴ T = 1 G = 1e5 nT per oersted.
+			return 1e5, nil
+		}
+		// The CGS names written out (gauss, 1 G = 1e-4 T, SI Brochure,
+		// 8th ed., Table 9; the milligauss 1 mG = 100 nT).
+		switch strings.ToLower(s) {
+		case "gauss":
+			return 1e5, nil
+		case "mgauss", "milligauss":
+			return 1e2, nil
+		case "oersted":
+			return 1e5, nil
 		}
 		return 0, fmt.Errorf("unknown field unit %q (want nT, pT, uT, mT, T, G or mG)", u)
 	case kindLength:

@@ -301,12 +301,15 @@ func zeroUnitStated(path string, opts []ingest.Option, offset [3]float64) error 
 	if src := strings.Join(srcs, ", "); src != what {
 		what = src + ", read as " + what
 	}
-	var flag []string
+	// The names suggested are built from the axes (bx_nT), not from
+	// the columns' own names, which may hold words of their own.
+	var flag, named []string
 	for _, c := range cols {
 		flag = append(flag, c+"=U")
+		named = append(named, c+"_nT")
 	}
-	return usageErrorf("%s: the field columns (%s) state no unit, and a log inside a shield reads near zero in any unit: read as nT its offset is %.4g, %.4g, %.4g nT, written in µT it would be 1000 times that. Give the unit with --unit %s, U the unit the log is written in (%s), or put it in the column names (%s_nT)",
-		path, what, offset[0], offset[1], offset[2], strings.Join(flag, ","), fieldUnits, srcs[0])
+	return usageErrorf("%s: the field columns (%s) state no unit, and a log inside a shield reads near zero in any unit: read as nT its offset is %.4g, %.4g, %.4g nT, written in µT it would be 1000 times that. Give the unit with --unit %s, U the unit the log is written in (%s), or put it in the column names (%s)",
+		path, what, offset[0], offset[1], offset[2], strings.Join(flag, ","), fieldUnits, strings.Join(named, ", "))
 }
 
 // inFile names path in an error from the calibrate package, whose own
@@ -326,6 +329,12 @@ func readCalibrationLog(ctx context.Context, rf *readFlags, opts []ingest.Option
 	s, rows, warns, err := rf.readLogRows(ctx, path, opts, checkUnits)
 	if err != nil {
 		return nil, calibrate.Input{}, nil, err
+	}
+	// A log whose own "# undercurrent.frame: ned" line turned it to east,
+	// north, up: the calibration would be made in the turned axes, and
+	// locate, which turns it for such a log, would turn it twice.
+	if s.InFrame == ingest.FrameNED {
+		return nil, calibrate.Input{}, nil, fmt.Errorf("%s: its metadata (%s) says its columns are north, east, down, so they were read turned to east, north, up; a calibration is made in the sensor's own axes, the bx, by, bz columns as the file has them (locate applies it there before it turns a log read as ned): give --frame enu to read them as they are", path, ingest.MetaFrame)
 	}
 	if name := calibrate.SensorName(s); name != "" {
 		if *sensor != "" && *sensor != name {

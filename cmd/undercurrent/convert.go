@@ -26,8 +26,10 @@ z in metres ENU, bx, by, bz in nT, group, ...) and writes OUT in the format
 given by its extension, in any case: .csv or .txt (CSV), .arrow, .feather
 or .ipc (Arrow IPC file), .arrows (Arrow IPC stream), or .parquet or .pq
 (Parquet); OUT's directory must exist. A conversion between these formats
-keeps every value exactly, with the frame, the WGS84 origin and header
-fields. OUT is
+keeps every value exactly as the 64-bit float it is read as, with the
+frame, the WGS84 origin and header fields; times are Unix seconds, whose
+float64 steps are 2^-22 s (0.24 µs) from 2004 to 2038, so finer time
+stamps (RFC 3339 or Arrow timestamps in ns) round by up to 0.12 µs. OUT is
 written under a temporary name and renamed, so a failure leaves nothing
 half-written. Missing values (NaN) are carried over unless --strict
 refuses them or --drop-missing drops their rows. It warns when the log has

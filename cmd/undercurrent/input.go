@@ -306,6 +306,7 @@ func readSamples(ctx context.Context, path string, opts ...ingest.Option) (*inge
 		return nil, err
 	}
 	s.Warnings = ingest.Warnings(r) // the wrapper hides them from Collect
+	s.InFrame, s.InFrameStated, _ = ingest.InputFrame(r)
 	s.Source = path
 	return s, nil
 }
@@ -503,12 +504,18 @@ func cliWording(s string) string {
 	s = strings.ReplaceAll(s, "(try units ", "(try --unit ")
 	s = strings.ReplaceAll(s, "(try columns ", "(try --column ")
 	s = strings.ReplaceAll(s, "the option WithDecimalComma(true), on the command line --decimal-comma", "--decimal-comma")
+	s = strings.ReplaceAll(s, "(WithFrame(FrameSensor), on the command line --frame sensor)", "(--frame sensor)")
+	s = strings.ReplaceAll(s, "(WithFrame, on the command line --frame)", "(--frame)")
 	s = mappingHint.ReplaceAllString(s, "with --column $1=NAME")
+	s = unitHint.ReplaceAllString(s, "--unit $1=U")
 	return singleBatch.ReplaceAllString(s, "${1}1 record batch$2")
 }
 
 // mappingHint matches ingest's advice to map a missing column, naming it.
 var mappingHint = regexp.MustCompile(`with a column mapping such as ([a-z]+)=NAME, on the command line --column [a-z]+=NAME`)
+
+// unitHint matches ingest's advice to give a column's unit.
+var unitHint = regexp.MustCompile(`a unit option ([a-z]+)=U \(on the command line --unit [a-z]+=U\)`)
 
 // singleBatch matches "1 record batches" (and not "11 record batches").
 var singleBatch = regexp.MustCompile(`(^|[^0-9.])1 record batches($|[^A-Za-z])`)

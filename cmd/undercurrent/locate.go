@@ -36,6 +36,7 @@ type locateOptions struct {
 	baseHoldSet  bool // --base-hold given (0 then means no hold at all)
 	baseUnits    []string
 	baseColumns  []string
+	baseFrame    string // --base-frame: enu or ned ("" the file's own)
 	freq         float64
 	window       float64
 	mainsText    string
@@ -84,6 +85,7 @@ func (o *locateOptions) setFlags(fs *pflag.FlagSet) {
 	fs.Float64Var(&o.baseHold, "base-hold", 0, "correct survey readings up to `S` seconds before or after the base log with its nearest value held, and interpolate the base across its gaps up to S seconds long, S above or below the default (default for both: five base sample intervals, at least 60 s and at most 300 s; 0: no hold at all, and no reading missing from the base; readings further out, or in a longer gap, are refused, since a held value or a straight line across the gap is no correction)")
 	fs.StringSliceVar(&o.baseColumns, "base-column", nil, "name the base log's columns, `CANON=NAME` as --column does for the survey logs (time=Time,bx=magX,by=magY,bz=magZ); not for an IAGA-2002 base")
 	fs.StringSliceVar(&o.baseUnits, "base-unit", nil, "units of the base log's columns, `CANON=UNIT` as --unit gives them for the survey logs (bx=uT,by=uT,bz=uT); a base log whose field is as steady as the Earth's but whose median lies outside the Earth's field band in nT is refused without it")
+	fs.StringVar(&o.baseFrame, "base-frame", "", "axes of the base log's field columns, `FRAME` enu or ned (default: the file's \"# undercurrent.frame:\" line or metadata, else enu); --frame applies to the survey logs only; not for an IAGA-2002 base, whose elements say")
 	fs.Float64Var(&o.freq, "freq", 0, "demodulate the AC field at `HZ` (50, 60, 16.7, 512...) and fit RMS currents with phase; the field's own frequency is then estimated from the log, and if it is off (a grid at 50.1 Hz) the log is demodulated at the estimate, with a warning saying so (too far off, it refuses and names the frequency found); without --freq the DC field is fitted (no frequency is estimated and AC is not looked for)")
 	fs.StringVar(&o.mainsText, "mains", "50,60", "with --freq at another frequency than the mains (an injected tracer, 16.7 Hz), fit the mains `HZ` (50, 60, both as 50,60, or none) and their odd harmonics alongside in every window, so that a strong mains field changing as the sensor walks does not leak into the signal as noise")
 	fs.Float64Var(&o.window, "window", 0, "AC demodulation window, `S` seconds (default: ten cycles at 50 or 60 Hz; at any other frequency ten cycles or 0.1 s, whichever is longer, rounded up to a multiple of 0.1 s, so that the window holds whole cycles of the 50 or 60 Hz mains and they do not leak in)")
@@ -263,7 +265,8 @@ reads logs, apply to the survey logs. Of them, only --time-order,
 --allow-unterminated and --iaga-baseline-frame apply to the base log
 (--base) too; it comes from another instrument, usually in another format,
 so it is read with its own column names (--base-column), units
-(--base-unit) and layout, and with
+(--base-unit), axes (--base-frame ned, or its own "# undercurrent.frame:
+ned" line; else east, north, up) and layout, and with
 missing values allowed (its gaps are reported). A base log whose time goes
 backwards (with --time-order any) is put in time order, with a warning.
 Each survey log's median |B| is checked against the Earth's field (about
@@ -520,6 +523,9 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 	if len(o.baseColumns) > 0 && o.base == "" {
 		return nil, usageErrorf("--base-column needs --base")
 	}
+	if o.baseFrame != "" && o.base == "" {
+		return nil, usageErrorf("--base-frame needs --base")
+	}
 	if err := checkSurveyCopies(logs); err != nil {
 		return nil, err
 	}
@@ -605,6 +611,7 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 	index := map[string]*group{}
 	var baseNotes []string
 	var seen surveyReadings
+	baseFrameWarned := false
 	for k, path := range logs {
 		if o.coil.on() {
 			// A field unit the log gives its own field columns.
@@ -621,6 +628,12 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		if base != nil {
 			if err := checkBaseNotSurvey(o.base, base, path, s); err != nil {
 				return nil, err
+			}
+			// --frame does not reach the base log: one that states no
+			// frame is read as east, north, up beside a survey in NED.
+			if s.InFrame == ingest.FrameNED && !base.InFrameStated && !baseFrameWarned {
+				baseFrameWarned = true
+				sv.warnings = append(sv.warnings, fmt.Sprintf("%s: the base log states no frame and is read as east, north, up, while %s is read as north, east, down: if the base log is in north, east, down too, give --base-frame ned (or a \"# undercurrent.frame: ned\" line in it), else its north departures are taken away from the survey's east", o.base, path))
 			}
 		}
 		// A coil's voltages are not compared as fields are.
@@ -659,8 +672,10 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			// applied in the file's axes before the turn. Before, it was
 			// applied to the turned columns as they were and landed on the
 			// wrong axes.
+			// A log read as NED by its own "# undercurrent.frame: ned"
+			// line is turned as one read with --frame ned.
 			c := cal
-			if f, err := ingest.ParseFrame(o.read.frame); err == nil && f == ingest.FrameNED {
+			if s.InFrame == ingest.FrameNED {
 				c = nedToENUCalibration(cal)
 			}
 			// A calibration of another sensor, or a log whose corrected
@@ -785,6 +800,13 @@ func baseUnitOptions(o *locateOptions, logs []string, bopts []ingest.Option) ([]
 		}
 		bopts = append(append([]ingest.Option(nil), bopts...), ingest.WithColumns(o.baseColumns...))
 	}
+	if o.baseFrame != "" {
+		f, err := ingest.ParseFrame(o.baseFrame)
+		if err != nil || f == ingest.FrameSensor {
+			return nil, usageErrorf("--base-frame %q: want enu or ned (a base log gives the field in geographic axes; one in the sensor's own axes holds nothing to turn it with)", o.baseFrame)
+		}
+		bopts = append(append([]ingest.Option(nil), bopts...), ingest.WithFrame(f))
+	}
 	if len(o.baseUnits) == 0 {
 		return bopts, nil
 	}
@@ -898,6 +920,14 @@ func baseReadError(err error) error {
 	return fmt.Errorf("%s (this is the base log, --base: --column and --unit apply to the survey logs only)", msg)
 }
 
+// nonEmpty returns s as a one-element list, or nil when it is empty.
+func nonEmpty(s string) []string {
+	if s == "" {
+		return nil
+	}
+	return []string{s}
+}
+
 // checkBaseLog checks what was read as the base log: the base flags that
 // do not apply to an IAGA-2002 file, an instrument-frame (UVW) record,
 // and positions that move (a base station stands still).
@@ -906,9 +936,9 @@ func checkBaseLog(o *locateOptions, base *ingest.Samples) error {
 		for _, f := range []struct {
 			name string
 			v    []string
-		}{{"--base-unit", o.baseUnits}, {"--base-column", o.baseColumns}} {
+		}{{"--base-unit", o.baseUnits}, {"--base-column", o.baseColumns}, {"--base-frame", nonEmpty(o.baseFrame)}} {
 			if len(f.v) > 0 {
-				return usageErrorf("%s does not apply to %s: it is an IAGA-2002 file, whose format fixes its columns and their unit (nT)", f.name, o.base)
+				return usageErrorf("%s does not apply to %s: it is an IAGA-2002 file, whose format fixes its columns, their axes (its elements) and their unit (nT)", f.name, o.base)
 			}
 		}
 	}
