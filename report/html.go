@@ -704,7 +704,7 @@ func (v *view) summarise() {
 			v.Headline = append(v.Headline, v.Scatter)
 		}
 		for _, t := range d.Conductors {
-			v.Headline = append(v.Headline, trackHeadline(d, &t))
+			v.Headline = append(v.Headline, trackSummary(d, &t))
 		}
 	} else {
 		for _, g := range d.Groups {
@@ -915,7 +915,7 @@ func LeastCover(d *Document) string {
 // ConductorSummary says in a sentence, as the crew report's summary does,
 // where further conductor t runs beside conductor 1, what it carries and
 // which way, and how deep it lies.
-func ConductorSummary(d *Document, t *Track) string { return trackHeadline(d, t) }
+func ConductorSummary(d *Document, t *Track) string { return trackSummary(d, t) }
 
 // trackHeadline says in a sentence where a further conductor runs and
 // what it carries.
@@ -1122,7 +1122,7 @@ func (v *view) plots() error {
 			if len(t.Route.Stations) < 2 {
 				continue
 			}
-			tv := trackView{Number: t.Number, Lead: trackHeadline(d, t)}
+			tv := trackView{Number: t.Number, Lead: trackSummary(d, t)}
 			if tv.Current, tv.Depth, err = alongPlots(d, &t.Route, t.Number); err != nil {
 				return err
 			}

@@ -145,7 +145,7 @@ func printFindings(w io.Writer, doc *report.Document) {
 		if c.Offset < 0 {
 			side = "left"
 		}
-		fmt.Fprintf(w, "; conductor %d followed on %d traverses, %.1f m to the %s of conductor 1 looking along the route", c.Number, len(c.Route.Stations), math.Abs(c.Offset), side)
+		fmt.Fprint(w, report.ConductorBrief(doc, &c, fmt.Sprintf("; conductor %d followed on %d traverses, %.1f m to the %s of conductor 1 looking along the route", c.Number, len(c.Route.Stations), math.Abs(c.Offset), side)))
 	}
 	fmt.Fprintln(w)
 	if len(doc.Findings) == 0 {

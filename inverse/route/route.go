@@ -72,9 +72,7 @@ func Build(stations []Station, set *Settings) (*Route, error) {
 	for k, idx := range order {
 		r.Stations[k] = Placed{Station: stations[idx], Index: idx}
 	}
-	for k := 1; k < len(r.Stations); k++ {
-		r.Stations[k].Chainage = r.Stations[k-1].Chainage + horiz(r.Stations[k-1].Point, r.Stations[k].Point)
-	}
+	measure(r.Stations)
 	orient(r.Stations)
 	cornerChainage(r.Stations, set)
 	r.Length = r.Stations[len(r.Stations)-1].Chainage
@@ -151,34 +149,62 @@ func horiz(a, b [3]float64) float64 { return math.Hypot(b[0]-a[0], b[1]-a[1]) }
 // chain returns the station indices in route order: nearest-neighbour
 // chaining from the station farthest from the centroid, improved by 2-opt,
 // in the direction that best agrees with the input order.
+//
+// Only the stations whose fit succeeded (OK) are chained when there are two
+// or more of them: a failed station's point is the centroid of its
+// readings, which may lie far from the conductor (a traverse past which the
+// cable has drifted, 25 m from it), and chained with the others it started
+// the route, put chainage 0 on the failed traverse and, through orient,
+// turned the next station's current (15 A read as -15 A beside +15 A: a
+// false "current rises by 28 A"; found in review). The failed stations are
+// then put in (see insertFailed).
 func chain(st []Station) []int {
-	n := len(st)
+	var good, failed []int
+	for i := range st {
+		if st[i].OK {
+			good = append(good, i)
+		} else {
+			failed = append(failed, i)
+		}
+	}
+	if len(failed) == 0 || len(good) < 2 {
+		all := make([]int, len(st))
+		for i := range all {
+			all[i] = i
+		}
+		return chainOf(st, all)
+	}
+	return insertFailed(st, chainOf(st, good), failed)
+}
+
+// chainOf returns the indices idx (into st, in increasing order) in route
+// order (see chain).
+func chainOf(st []Station, idx []int) []int {
+	n := len(idx)
 	order := make([]int, n)
 	if n <= 2 {
-		for i := range order {
-			order[i] = i
-		}
+		copy(order, idx)
 		return order
 	}
 	var ce, cn float64
-	for i := range st {
+	for _, i := range idx {
 		ce += st[i].Point[0]
 		cn += st[i].Point[1]
 	}
 	ce /= float64(n)
 	cn /= float64(n)
-	start, far := 0, -1.0
-	for i := range st {
+	start, far := idx[0], -1.0
+	for _, i := range idx {
 		if d := math.Hypot(st[i].Point[0]-ce, st[i].Point[1]-cn); d > far {
 			start, far = i, d
 		}
 	}
-	used := make([]bool, n)
+	used := make(map[int]bool, n)
 	order[0], used[start] = start, true
 	for k := 1; k < n; k++ {
 		last := st[order[k-1]].Point
 		best, bd := -1, math.Inf(1)
-		for i := range st {
+		for _, i := range idx {
 			if used[i] {
 				continue
 			}
@@ -191,10 +217,14 @@ func chain(st []Station) []int {
 	twoOpt(st, order)
 
 	// Orient the chain to agree with the caller's order.
-	var corr float64
+	var corr, im float64
+	for _, i := range idx {
+		im += float64(i)
+	}
+	im /= float64(n)
 	mid := float64(n-1) / 2
-	for k, idx := range order {
-		corr += (float64(k) - mid) * (float64(idx) - mid)
+	for k, i := range order {
+		corr += (float64(k) - mid) * (float64(i) - im)
 	}
 	if corr < 0 {
 		for i, j := 0, n-1; i < j; i, j = i+1, j-1 {
@@ -202,6 +232,102 @@ func chain(st []Station) []int {
 		}
 	}
 	return order
+}
+
+// insertFailed puts the failed stations (indices into st) into order, the
+// chained sound ones. When the chain follows the caller's order (its
+// indices increase), each goes where its index falls, so a failed last
+// traverse stays last; otherwise each goes where it lengthens the path
+// least.
+func insertFailed(st []Station, order, failed []int) []int {
+	if sort.IntsAreSorted(order) {
+		all := append(append([]int(nil), order...), failed...)
+		sort.Ints(all)
+		return all
+	}
+	out := append([]int(nil), order...)
+	for _, f := range failed {
+		p := st[f].Point
+		best, cost := 0, horiz(p, st[out[0]].Point)
+		if c := horiz(st[out[len(out)-1]].Point, p); c < cost {
+			best, cost = len(out), c
+		}
+		for k := 1; k < len(out); k++ {
+			a, b := st[out[k-1]].Point, st[out[k]].Point
+			if c := horiz(a, p) + horiz(p, b) - horiz(a, b); c < cost {
+				best, cost = k, c
+			}
+		}
+		out = append(out, 0)
+		copy(out[best+1:], out[best:])
+		out[best] = f
+	}
+	return out
+}
+
+// measure sets the chainage of ps (in route order): the distance along the
+// chords between successive sound (OK) stations' points, from the first
+// station. A failed station's point is the centroid of its readings, off
+// the conductor by as much as the conductor is off the traverse's middle,
+// so it takes no part in the chords: it takes the chainage of its point
+// projected on the chord between the sound stations either side of it, or
+// on the first or last chord produced beyond the route's ends. With fewer
+// than two sound stations all are chained point to point.
+func measure(ps []Placed) {
+	var g []int
+	for k := range ps {
+		if ps[k].OK {
+			g = append(g, k)
+		}
+	}
+	if len(g) < 2 || len(g) == len(ps) {
+		ps[0].Chainage = 0
+		for k := 1; k < len(ps); k++ {
+			ps[k].Chainage = ps[k-1].Chainage + horiz(ps[k-1].Point, ps[k].Point)
+		}
+		return
+	}
+	ps[g[0]].Chainage = 0
+	for j := 1; j < len(g); j++ {
+		ps[g[j]].Chainage = ps[g[j-1]].Chainage + horiz(ps[g[j-1]].Point, ps[g[j]].Point)
+	}
+	// along is the distance of p along the chord from a to b, measured
+	// from a.
+	along := func(a, b *Placed, p [3]float64) float64 {
+		l := horiz(a.Point, b.Point)
+		if l == 0 {
+			return 0
+		}
+		return ((p[0]-a.Point[0])*(b.Point[0]-a.Point[0]) + (p[1]-a.Point[1])*(b.Point[1]-a.Point[1])) / l
+	}
+	// Before the first sound station, backwards so each is at or before
+	// the next.
+	a, b := &ps[g[0]], &ps[g[1]]
+	for k := g[0] - 1; k >= 0; k-- {
+		ps[k].Chainage = math.Min(math.Min(along(a, b, ps[k].Point), 0), ps[k+1].Chainage)
+	}
+	// Between sound stations and past the last one.
+	for j := 0; j < len(g); j++ {
+		a := &ps[g[j]]
+		end := len(ps)
+		if j+1 < len(g) {
+			end = g[j+1]
+		}
+		for k := g[j] + 1; k < end; k++ {
+			var c float64
+			if j+1 < len(g) {
+				b := &ps[g[j+1]]
+				c = a.Chainage + math.Min(math.Max(along(a, b, ps[k].Point), 0), b.Chainage-a.Chainage)
+			} else {
+				z := &ps[g[j-1]]
+				c = a.Chainage + math.Max(along(z, a, ps[k].Point)-horiz(z.Point, a.Point), 0)
+			}
+			ps[k].Chainage = math.Max(c, ps[k-1].Chainage)
+		}
+	}
+	for k := len(ps) - 1; k >= 0; k-- {
+		ps[k].Chainage -= ps[0].Chainage
+	}
 }
 
 // twoOpt improves an open path in place by reversing runs of stations while
@@ -240,18 +366,14 @@ func twoOpt(st []Station, order []int) {
 
 // orient makes every station's Dir a unit vector along increasing chainage,
 // adjusting the sign of the current (or the phase for AC) to match.
+// The direction of the route at a station is taken from the stations
+// either side of it whose fits succeeded (see neighbours).
 func orient(ps []Placed) {
 	n := len(ps)
 	for k := range ps {
 		var t [2]float64
 		if n > 1 {
-			a, b := k-1, k+1
-			if a < 0 {
-				a = 0
-			}
-			if b > n-1 {
-				b = n - 1
-			}
+			a, b := neighbours(ps, k)
 			t = [2]float64{ps[b].Point[0] - ps[a].Point[0], ps[b].Point[1] - ps[a].Point[1]}
 		}
 		d := ps[k].Dir
@@ -276,6 +398,51 @@ func orient(ps []Placed) {
 		}
 		ps[k].Dir = d
 	}
+}
+
+// neighbours returns the stations of ps (in route order) whose points give
+// the route's direction at station k: the sound (OK) stations nearest it
+// either side, k itself at an end of the route when it is sound, and the
+// first or last two sound stations for a failed station beyond them. A
+// failed station's point is the centroid of its readings and says nothing
+// of where the conductor runs (see chain). With fewer than two sound
+// stations they are k's immediate neighbours.
+func neighbours(ps []Placed, k int) (a, b int) {
+	n := len(ps)
+	var g []int
+	for i := range ps {
+		if ps[i].OK {
+			g = append(g, i)
+		}
+	}
+	if len(g) < 2 {
+		return max(k-1, 0), min(k+1, n-1)
+	}
+	a, b = -1, -1
+	for _, i := range g {
+		if i < k {
+			a = i
+		}
+		if i > k && b < 0 {
+			b = i
+		}
+	}
+	if ps[k].OK {
+		if a < 0 {
+			a = k
+		}
+		if b < 0 {
+			b = k
+		}
+		return a, b
+	}
+	switch {
+	case a < 0:
+		return g[0], g[1]
+	case b < 0:
+		return g[len(g)-2], g[len(g)-1]
+	}
+	return a, b
 }
 
 // wrapDeg wraps an angle into (-180, 180].
