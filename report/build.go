@@ -283,7 +283,6 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 	}
 	d.addTracks(tracks)
 	d.addLoneCover(fits, r, rs, tracks)
-	d.addLoneAzimuthSigmas()
 	d.addPairCover(rs)
 	return &d, nil
 }
@@ -589,7 +588,7 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute boo
 			}
 			if o.Kind != KindDipole && sound(&o) {
 				st.Further = append(st.Further, route.Line{Point: o.Point, Dir: o.Dir,
-					Current: o.Current, CurrentSigma: o.CurrentSigma, Depth: o.Depth, DepthSigma: o.DepthSigma})
+					Current: o.Current, CurrentSigma: o.CurrentSigma, Depth: o.Depth, DepthSigma: o.DepthSigma, AzimuthSigma: o.AzimuthSigma})
 			}
 		}
 		if profileMax > 0 {

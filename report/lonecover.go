@@ -32,7 +32,7 @@ func (d *Document) addLoneCover(fits []Fit, r *route.Route, rs *route.Settings, 
 			if j == 0 || s.Kind == KindDipole || !sound(&s) || tracked[key{p.Index, j}] {
 				continue
 			}
-			l := route.Line{Point: s.Point, Dir: s.Dir, Current: s.Current, CurrentSigma: s.CurrentSigma, Depth: s.Depth, DepthSigma: s.DepthSigma}
+			l := route.Line{Point: s.Point, Dir: s.Dir, Current: s.Current, CurrentSigma: s.CurrentSigma, Depth: s.Depth, DepthSigma: s.DepthSigma, AzimuthSigma: s.AzimuthSigma}
 			if f, ok := route.LoneCover(p, l, rs, len(r.Stations) == 1); ok {
 				nf := findingOf(f)
 				nf.Lone = true

@@ -37,8 +37,14 @@ func LoneCover(p *Placed, l Line, set *Settings, single bool) (Finding, bool) {
 		code = set.CoverCode
 	}
 	az := math.Mod(math.Atan2(l.Dir[0], l.Dir[1])*180/math.Pi+360, 180)
-	msg := fmt.Sprintf("a further line source in the fit at %s, %s A running at azimuth %.0f degrees, is not followed along the route (too few groups show it: a crossing service, or a conductor the other fits do not resolve); its cover, %s m, %s the %.2f m minimum (%s): confirm before digging here",
-		at(p, single), pm(math.Abs(l.Current), l.CurrentSigma), az, pm(c, sc), verdict, math.Abs(set.MinCover), code)
+	azText := pm(az, l.AzimuthSigma)
+	if !(l.AzimuthSigma > 0) {
+		// Rounded to whole degrees; 179.7 is the line at 0 (an azimuth is
+		// taken in [0, 180)).
+		azText = fmt.Sprintf("%.0f", math.Mod(math.Round(az), 180))
+	}
+	msg := fmt.Sprintf("a further line source in the fit at %s, %s A running at azimuth %s degrees, is not followed along the route (too few groups show it: a crossing service, or a conductor the other fits do not resolve); its cover, %s m, %s the %.2f m minimum (%s): confirm before digging here",
+		at(p, single), pm(math.Abs(l.Current), l.CurrentSigma), azText, pm(c, sc), verdict, math.Abs(set.MinCover), code)
 	return Finding{
 		Kind:     KindShallowCover,
 		Severity: sev,
@@ -51,7 +57,7 @@ func LoneCover(p *Placed, l Line, set *Settings, single bool) (Finding, bool) {
 			{Name: "cover", Value: c, Sigma: sc, Unit: "m"},
 			{Name: "minimum cover", Value: set.MinCover, Unit: "m"},
 			{Name: "current", Value: math.Abs(l.Current), Sigma: l.CurrentSigma, Unit: "A"},
-			{Name: "azimuth", Value: az, Unit: "deg"},
+			{Name: "azimuth", Value: az, Sigma: l.AzimuthSigma, Unit: "deg"},
 		},
 	}, true
 }

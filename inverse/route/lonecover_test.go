@@ -1,6 +1,7 @@
 package route
 
 import (
+	"math"
 	"strings"
 	"testing"
 )
@@ -38,5 +39,31 @@ func TestLoneCover(t *testing.T) {
 	l := Line{Dir: level, Current: 10, CurrentSigma: 0.02, Depth: 0.65, DepthSigma: 0.005}
 	if _, ok := LoneCover(p, l, &Settings{SensorHeight: 0.3}, false); ok {
 		t.Error("a finding with no minimum cover")
+	}
+}
+
+// TestLoneCoverAzimuth: a lone line's azimuth is given with the sigma the fit
+// found for it, in the message and the finding's values; without one it is
+// rounded to whole degrees in [0, 180), so a line at 179.7 degrees (the same
+// line as at 359.7 or -0.3) reads 0, not 180.
+func TestLoneCoverAzimuth(t *testing.T) {
+	p := &Placed{Station: Station{Key: "T06", OK: true, Current: 30, CurrentSigma: 0.01, Depth: 1.3, DepthSigma: 0.01}}
+	set := &Settings{MinCover: 0.6, SensorHeight: 0.3}
+	a := (180 - 0.3) * math.Pi / 180
+	dir := [3]float64{math.Sin(a), math.Cos(a), 0}
+	l := Line{Point: [3]float64{30, 0, -0.65}, Dir: dir, Current: 10, CurrentSigma: 0.02, Depth: 0.65, DepthSigma: 0.005}
+	f, ok := LoneCover(p, l, set, false)
+	if !ok || !strings.Contains(f.Message, "azimuth 0 degrees") {
+		t.Errorf("no sigma: %s", f.Message)
+	}
+	l.AzimuthSigma = 0.04
+	f, ok = LoneCover(p, l, set, false)
+	if !ok || !strings.Contains(f.Message, "azimuth "+pm(179.7, 0.04)+" degrees") {
+		t.Errorf("with its sigma: %s", f.Message)
+	}
+	for _, v := range f.Values {
+		if v.Name == "azimuth" && v.Sigma != 0.04 {
+			t.Errorf("azimuth value %+v, want its sigma 0.04", v)
+		}
 	}
 }

@@ -82,6 +82,9 @@ type Line struct {
 	// Depth and DepthSigma are its depth below the depth reference at
 	// Point and one-sigma uncertainty, m.
 	Depth, DepthSigma float64
+	// AzimuthSigma is the one-sigma uncertainty of its azimuth, degrees;
+	// 0 when the azimuth was held or is not known.
+	AzimuthSigma float64
 }
 
 // Object is a magnetised object found beside the conductor: a point dipole
