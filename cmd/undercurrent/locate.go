@@ -300,7 +300,7 @@ one current. When a log has a group column whose groups are traverses, or
 the readings run along the fitted line for more than 20 times its depth,
 the run warns and suggests --group-by. Without --despike, each log is
 checked for spikes (readings more than 10 robust standard deviations from
-the running median of their neighbours); when at least 0.1% of readings
+the local trend of their neighbours); when at least 0.1% of readings
 are spikes the run warns and suggests --despike. These warnings come first
 in the summary's, the result document's and the report's warnings.
 
