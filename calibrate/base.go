@@ -440,7 +440,8 @@ type BaseSpikes struct {
 }
 
 // DespikeBaseColumns finds spikes in a base record (times bt in seconds,
-// increasing; field columns bb in nT) with the Hampel filter of FindSpikes
+// increasing; field columns bb in nT) with the median (Hampel) filter of
+// FindSpikes (DespikeSettings.Median)
 // and sets all three field values of each spiked row to NaN, in place, so
 // that the base correction interpolates across them from the readings
 // either side. A base station stands still in a field that changes
@@ -454,7 +455,13 @@ func DespikeBaseColumns(bt []float64, bb [3][]float64, set *DespikeSettings) (*B
 			return nil, fmt.Errorf("calibrate: base despike: field column %d has %d rows, time has %d", k, len(bb[k]), len(bt))
 		}
 	}
-	flag, _, _, err := FindSpikes([][]float64{bb[0], bb[1], bb[2]}, set)
+	// A record in time at one place: the median filter (DespikeSettings).
+	var ds DespikeSettings
+	if set != nil {
+		ds = *set
+	}
+	ds.Median = true
+	flag, _, _, err := FindSpikes([][]float64{bb[0], bb[1], bb[2]}, &ds)
 	if err != nil {
 		return nil, err
 	}

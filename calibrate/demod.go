@@ -10,6 +10,8 @@ import (
 
 	"gonum.org/v1/gonum/dsp/fourier"
 	"gonum.org/v1/gonum/mat"
+
+	"undercurrent/ingest"
 )
 
 // Window is one demodulated AC window. B is the complex RMS field per axis
@@ -124,6 +126,15 @@ type DemodResult struct {
 	Uniform, General int
 	// Nuisance lists the nuisance frequencies fitted (DemodSettings), Hz.
 	Nuisance []float64
+	// Window is the length of the windows, s: a whole number of samples,
+	// the one asked for unless the sampling does not divide it (then
+	// the nearest whole number of samples).
+	Window float64
+	// Quantum describes time stamps quantised to a resolution coarser than
+	// the sampling (nil when they are not): when Uniform, the windows were
+	// fitted on times rebuilt on the steady sampling the stamps fit, and
+	// Window.Time is on those times. A warning says so.
+	Quantum *ingest.TimeQuantum
 	// Dropped counts samples that fell in no full window (run tails).
 	Dropped int
 	// Losses lists, per group, the windows lost to breaks in the time
@@ -187,6 +198,10 @@ type NoWindowError struct {
 	// Breaks sums the breaks in the time column over the groups (Group
 	// and Windows unused).
 	Breaks DemodLoss
+	// Quantum is the resolution of time stamps that look quantised but do
+	// not fit a steady sampling (DemodResult.Quantum), s; 0 otherwise.
+	// Their repeated times are then no repeated rows.
+	Quantum float64
 }
 
 func (e *NoWindowError) Error() string {
@@ -197,6 +212,9 @@ func (e *NoWindowError) Error() string {
 	msg := fmt.Sprintf("calibrate: %sdemodulate: no run of the log is as long as one %g s window (%d samples)", src, e.Window, e.N)
 	if why := e.Breaks.reasons(); why != "" {
 		msg += fmt.Sprintf(": the time column %s, and a window never spans such a break; the longest run holds %d samples (%.4g s)", why, e.Longest, e.LongestS)
+	}
+	if e.Quantum > 0 {
+		msg += fmt.Sprintf("; the times look written to %.4g s, coarser than the sampling, but do not fit a steady sampling", e.Quantum)
 	}
 	return msg
 }
@@ -362,6 +380,7 @@ func DemodulateColumns(c *Columns, set *DemodSettings) (*DemodResult, error) {
 	if err := c.check(); err != nil {
 		return nil, err
 	}
+	c, quantum := retimeColumns(c)
 	if ds.Freq < 0 || math.IsNaN(ds.Freq) || math.IsInf(ds.Freq, 0) {
 		return nil, fmt.Errorf("calibrate: demodulate: frequency %g Hz is not positive", ds.Freq)
 	}
@@ -397,6 +416,10 @@ func DemodulateColumns(c *Columns, set *DemodSettings) (*DemodResult, error) {
 	}
 	res.Freq = ds.Freq
 	res.Nuisance = append([]float64(nil), ds.Nuisance...)
+	if quantum != nil {
+		res.Quantum = quantum
+		res.Warnings = append(res.Warnings, quantumWarning(quantum, ds.Freq))
+	}
 	maxH := 1
 	for _, h := range ds.Harmonics {
 		maxH = max(maxH, h)
@@ -419,6 +442,7 @@ func DemodulateColumns(c *Columns, set *DemodSettings) (*DemodResult, error) {
 	}
 	N := int(math.Round(ds.Window / dt))
 	hop := max(1, int(math.Round(ds.Step/dt)))
+	res.Window = usedWindow(ds.Window, N, dt)
 	for _, fn := range ds.Nuisance {
 		if !(fn > 0) || fn >= fs/2 || math.IsInf(fn, 0) {
 			return nil, fmt.Errorf("calibrate: demodulate: nuisance frequency %g Hz is not between 0 and the Nyquist frequency %g Hz", fn, fs/2)
@@ -497,9 +521,12 @@ func DemodulateColumns(c *Columns, set *DemodSettings) (*DemodResult, error) {
 			}
 		}
 		e.Breaks = c.breaks(runs, MaxStepIntervals*dt)
+		if quantum != nil && !quantum.Uniform {
+			e.Quantum = quantum.Quantum
+		}
 		return nil, e
 	}
-	if w := lossWarning(res.Losses, c.Group != nil); w != "" {
+	if w := lossWarning(res.Losses, c.Group != nil, quantum); w != "" {
 		res.Warnings = append(res.Warnings, w)
 	}
 	return res, nil
@@ -587,8 +614,10 @@ func (c *Columns) losses(runs []run, got []int, N, hop int, maxStep float64) []D
 }
 
 // lossWarning describes the windows lost to breaks in the time column, per
-// group when grouped; "" when none was lost.
-func lossWarning(ls []DemodLoss, grouped bool) string {
+// group when grouped; "" when none was lost. With stamps that look
+// quantised (q non-nil and not uniform), repeated times are no repeated
+// rows, and the advice is to write the times with more digits.
+func lossWarning(ls []DemodLoss, grouped bool, q *ingest.TimeQuantum) string {
 	if len(ls) == 0 {
 		return ""
 	}
@@ -608,7 +637,11 @@ func lossWarning(ls []DemodLoss, grouped bool) string {
 	if grouped {
 		what += fmt.Sprintf("; windows lost/expected per group: %s", strings.Join(per, ", "))
 	}
-	return what + ". A window never spans a repeated time, one going backwards or a pause longer than one missing sample, so the samples between two breaks closer than a window are left out and the fit rests on fewer windows: fix the logger's time stamps (repeated rows removed), or demodulate in shorter windows"
+	fix := "fix the logger's time stamps (repeated rows removed)"
+	if q != nil && !q.Uniform {
+		fix = fmt.Sprintf("write the times with more digits than their %.4g s (the repeated times are rows of their own, not copies)", q.Quantum)
+	}
+	return what + ". A window never spans a repeated time, one going backwards or a pause longer than one missing sample, so the samples between two breaks closer than a window are left out and the fit rests on fewer windows: " + fix + ", or demodulate in shorter windows"
 }
 
 // short describes l's breaks tersely: "5 repeated, 2 pauses".

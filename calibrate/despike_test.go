@@ -6,6 +6,8 @@ import (
 	"slices"
 	"testing"
 
+	"gonum.org/v1/gonum/mat"
+
 	"undercurrent/ingest"
 )
 
@@ -129,6 +131,112 @@ func BenchmarkDespike(b *testing.B) {
 	b.ReportMetric(float64(n)*float64(b.N)/b.Elapsed().Seconds()/1e6, "Mrows/s")
 }
 
+func TestTrendSpikesMatchesDirect(t *testing.T) {
+	// The moment sums and cofactor solve of trendSpikes must decide as a
+	// direct computation does: each window's quadratic fitted by gonum's
+	// QR least squares (mat.Dense.Solve), refitted without the neighbours
+	// beyond k scales, on data with a trend, ties, spikes and NaNs, and
+	// the median test where a window holds under minTrendPoints readings.
+	rng := rand.New(rand.NewPCG(27, 28))
+	x := make([]float64, 3000)
+	for i := range x {
+		x[i] = 0.01*float64(i) + math.Round(4*rng.NormFloat64())/2 // ties
+		if rng.IntN(50) == 0 {
+			x[i] += 40
+		}
+		if rng.IntN(300) == 0 {
+			x[i] = math.NaN()
+		}
+	}
+	scaleOf := func(r []float64, keep []bool, g00 float64) float64 {
+		var a []float64
+		for j, v := range r {
+			if keep[j] {
+				a = append(a, math.Abs(v))
+			}
+		}
+		m := float64(len(a))
+		return 1.4826 * median(a, nil) * math.Sqrt(m/(m-3)*(1+g00))
+	}
+	fit := func(u, y []float64, keep []bool) (b0, g00 float64, r []float64) {
+		var rows []float64
+		var ys []float64
+		for j := range u {
+			if keep[j] {
+				rows = append(rows, 1, u[j], u[j]*u[j])
+				ys = append(ys, y[j])
+			}
+		}
+		A := mat.NewDense(len(ys), 3, rows)
+		var b mat.VecDense
+		if err := b.SolveVec(A, mat.NewVecDense(len(ys), ys)); err != nil {
+			t.Fatal(err)
+		}
+		var ata, inv mat.Dense
+		ata.Mul(A.T(), A)
+		if err := inv.Inverse(&ata); err != nil {
+			t.Fatal(err)
+		}
+		for j := range u {
+			r = append(r, y[j]-(b.AtVec(0)+b.AtVec(1)*u[j]+b.AtVec(2)*u[j]*u[j]))
+		}
+		return b.AtVec(0), inv.At(0, 0), r
+	}
+	for _, K := range []int{2, 3, 5, 10} {
+		ds := DespikeSettings{HalfWidth: K, Threshold: 3, Floor: 0.1}
+		got := make([]bool, len(x))
+		trendSpikes(x, ds, got)
+		for i, xi := range x {
+			if !finite(xi) {
+				if got[i] {
+					t.Fatalf("K=%d: NaN row %d marked", K, i)
+				}
+				continue
+			}
+			var u, y []float64
+			for j := max(0, i-K); j < min(len(x), i+K+1); j++ {
+				if (j < i-1 || j > i+1) && finite(x[j]) {
+					u = append(u, float64(j-i))
+					y = append(y, x[j]-xi)
+				}
+			}
+			var dev, sc float64
+			if len(u) < minTrendPoints {
+				w := append(append([]float64(nil), y...), 0)
+				med := median(w, nil)
+				var d []float64
+				for _, v := range w {
+					d = append(d, math.Abs(v-med))
+				}
+				dev, sc = -med, 1.4826*median(d, nil)
+			} else {
+				keep := make([]bool, len(u))
+				for j := range keep {
+					keep[j] = true
+				}
+				b0, g00, r := fit(u, y, keep)
+				dev, sc = -b0, scaleOf(r, keep, g00)
+				drop := 0
+				for j := range r {
+					if math.Abs(r[j]) > ds.Threshold*sc {
+						keep[j] = false
+						drop++
+					}
+				}
+				if drop > 0 && len(u)-drop >= minTrendPoints {
+					b0, g00, r = fit(u, y, keep)
+					dev, sc = -b0, scaleOf(r, keep, g00)
+				}
+			}
+			want := math.Abs(dev) > ds.Threshold*math.Max(sc, ds.Floor)
+			// A departure within a part in 1e9 of the cut may fall
+			// either way.
+			if got[i] != want && math.Abs(math.Abs(dev)-ds.Threshold*math.Max(sc, ds.Floor)) > 1e-9*math.Abs(dev) {
+				t.Fatalf("K=%d row %d: trendSpikes %v, direct %v (departure %g, scale %g)", K, i, got[i], want, dev, sc)
+			}
+		}
+	}
+}
 func TestHampelMatchesDirect(t *testing.T) {
 	// The sliding sorted window and merged MAD must equal a direct
 	// computation (sort every window) on data with ties and NaNs.

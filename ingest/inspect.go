@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"strconv"
 	"strings"
 	"time"
 
@@ -55,6 +56,12 @@ type TimeStats struct {
 	Largest     []Gap   `json:"largest_gaps"`
 	Backwards   int     `json:"backwards"`
 	Repeated    int     `json:"repeated"`
+	// Quantum describes stamps quantised to a resolution coarser than the
+	// sampling (RetimeQuantised, from the first rows kept for the median);
+	// nil when they are not. When they fit a steady sampling, Interval and
+	// Rate are that sampling's (not the median step), and a gap is a step
+	// longer than both of the quantised steps as well.
+	Quantum *TimeQuantum `json:"quantum,omitempty"`
 }
 
 // Gap is a long step in time, after row Row (0-based).
@@ -116,7 +123,7 @@ func Inspect(path string, opts ...Option) (*Inspection, error) {
 	for i := range mins {
 		mins[i], maxs[i] = math.Inf(1), math.Inf(-1)
 	}
-	var steps, mags []float64
+	var steps, mags, times []float64
 	gaps := &gapHeap{}
 	prev := math.NaN()
 	row := 0
@@ -182,6 +189,9 @@ func Inspect(path string, opts ...Option) (*Inspection, error) {
 				}
 			}
 			prev = t
+			if len(times) < keepSteps {
+				times = append(times, t)
+			}
 			if len(mags) < keepSteps {
 				bx, by, bz := cols[bIdx[0]][k], cols[bIdx[1]][k], cols[bIdx[2]][k]
 				if m := math.Sqrt(bx*bx + by*by + bz*bz); !math.IsNaN(m) {
@@ -216,11 +226,20 @@ func Inspect(path string, opts ...Option) (*Inspection, error) {
 		}
 		if len(steps) > 0 {
 			ts.Interval = median(steps)
+			gap := GapFactor * ts.Interval
+			if _, tq := RetimeQuantised(times, nil); tq != nil {
+				ts.Quantum = tq
+				in.Warnings = append(in.Warnings, quantumWarning(tq, len(times) < in.Rows))
+				if tq.Uniform {
+					ts.Interval = tq.Interval
+					gap = max(GapFactor*ts.Interval, tq.Steps[1]+0.5*tq.Quantum)
+				}
+			}
 			ts.Rate = 1 / ts.Interval
 			list := append([]Gap(nil), (*gaps)...)
 			sort.Slice(list, func(a, b int) bool { return list[a].Length > list[b].Length })
 			for _, g := range list {
-				if g.Length > GapFactor*ts.Interval {
+				if g.Length > gap {
 					ts.Gaps++
 					if len(ts.Largest) < 10 {
 						ts.Largest = append(ts.Largest, g)
@@ -242,6 +261,296 @@ func utcString(t float64) string {
 	sec := math.Floor(t)
 	return unixTime(int64(sec), int64(math.Round((t-sec)*1e9))).UTC().Round(time.Millisecond).Format("2006-01-02T15:04:05.999Z07:00")
 }
+
+// TimeQuantum describes time stamps written to a resolution coarser than
+// the sample interval: a logger sampling at a steady 800 Hz whose times are
+// printed to the millisecond steps 1 ms and 2 ms between rows (0.25 ms
+// behind and ahead of the true times in turn), one at 1600 Hz steps 0 and
+// 1 ms. Read as exact, such stamps put each sample up to half a quantum
+// off its time, which biases every sine fit (RetimeQuantised).
+type TimeQuantum struct {
+	// Quantum is the stamps' resolution, s, and Steps the two step
+	// lengths the rows take, s (a whole number of quanta apart by one).
+	Quantum float64    `json:"quantum"`
+	Steps   [2]float64 `json:"steps"`
+	// Uniform: the stamps fit a steady sampling to within one quantum in
+	// each continuous run, which RetimeQuantised then restores. False when
+	// they only look quantised (both steps common) but wander further: no
+	// times are rebuilt and each keeps its error of up to a quantum.
+	Uniform bool `json:"uniform"`
+	// Interval is the sample interval, s: the least-squares slope of time
+	// against row number shared by the continuous runs (each run its own
+	// intercept). Zero unless Uniform.
+	Interval float64 `json:"interval,omitempty"`
+	// Runs counts the continuous runs of two rows or more: stretches
+	// between group changes, times going back, pauses (a step longer than
+	// the longer of Steps) and breaks in the pattern. Rows counts the
+	// rows in them.
+	Runs, Rows int `json:"-"`
+	// MaxShift is the largest change RetimeQuantised makes to a time, s.
+	MaxShift float64 `json:"max_shift,omitempty"`
+}
+
+// quantumMinEvidence is the fewest steps of the rarer of the two lengths,
+// beyond the first of each run, that RetimeQuantised wants within runs
+// that fit a steady sampling before it takes stamps as quantised. A log
+// stamped exactly that misses a sample now and then also steps one and
+// two intervals, but its rare long steps fall at random, and a least-squares
+// line through more than a few of them leaves residuals wider than one
+// interval (a random walk): only stamps of a steady sampling stay within
+// one quantum of the line however many long steps they hold.
+const quantumMinEvidence = 8
+
+// quantumAmbiguousShare is the least share of the rarer step that
+// RetimeQuantised wants before it takes steps of one and two quanta
+// (missing samples?) or of none and one (rows stored twice?) as quantised
+// stamps. It leaves out sampling within 5% of the quantum's rate (950 to
+// 1050 Hz written to the millisecond), whose stamps are then off by an
+// amount that changes only slowly along the log.
+const quantumAmbiguousShare = 0.05
+
+// RetimeQuantised looks for time stamps quantised to a resolution coarser
+// than the sample interval (TimeQuantum) in times t (group g, or nil: a
+// change of group starts a new run) and, when they fit a steady sampling,
+// returns the times rebuilt on it: within each continuous run, the
+// least-squares line of time against row (one slope, the sample
+// interval, for all runs; each run its own intercept), so that pauses
+// between runs, group changes and NaN times are kept. It returns nil
+// times and nil when the stamps are not quantised, and nil times with a
+// TimeQuantum whose Uniform is false when they look quantised but do not
+// fit a steady sampling.
+//
+// The stamps are taken as quantised when the steps between rows take
+// two lengths k and k+1 quanta (k may be 0: repeated times), each common,
+// every other step being a pause or a break; and when, within each run,
+// the stamps stay within one quantum of a straight line through them,
+// as rounding (or truncating) the times of a steady sampling leaves them.
+// Stamps truncated rather than rounded sit half a quantum early on
+// average, which the rebuilt times keep: a phase offset common to the log.
+func RetimeQuantised(t []float64, g []string) ([]float64, *TimeQuantum) {
+	n := len(t)
+	if n < 2*quantumMinEvidence {
+		return nil, nil
+	}
+	same := func(i int) bool { return g == nil || g[i] == g[i-1] }
+	// The step lengths, from up to 65536 steps at the start of the
+	// log, clustered.
+	var d []float64
+	var tmax float64
+	for i := 1; i < n; i++ {
+		if a := math.Abs(t[i]); a > tmax && !math.IsInf(a, 0) {
+			tmax = a
+		}
+		if s := t[i] - t[i-1]; s >= 0 && same(i) && len(d) < 1<<16 {
+			d = append(d, s)
+		}
+	}
+	if len(d) < 2*quantumMinEvidence {
+		return nil, nil
+	}
+	ulp := math.Nextafter(tmax, math.Inf(1)) - tmax
+	sort.Float64s(d)
+	type cluster struct {
+		sum float64
+		n   int
+	}
+	var cl []cluster
+	for i := 0; i < len(d); {
+		j := i
+		var s float64
+		for j < len(d) && d[j]-d[i] <= max(1e-3*d[i], 8*ulp) {
+			s += d[j]
+			j++
+		}
+		cl = append(cl, cluster{s, j - i})
+		i = j
+	}
+	sort.SliceStable(cl, func(a, b int) bool { return cl[a].n > cl[b].n })
+	if len(cl) < 2 || cl[1].n < quantumMinEvidence {
+		return nil, nil
+	}
+	lo, hi := cl[0].sum/float64(cl[0].n), cl[1].sum/float64(cl[1].n)
+	if lo > hi {
+		lo, hi = hi, lo
+	}
+	q := hi - lo
+	tol := max(0.02*q, 8*ulp)
+	m := math.Round(lo / q)
+	if q < 100*ulp || math.Abs(lo-m*q) > tol {
+		return nil, nil
+	}
+	tq := &TimeQuantum{Quantum: q, Steps: [2]float64{m * q, (m + 1) * q}}
+	// Both step lengths common: the stamps at least look quantised.
+	looks := float64(cl[1].n) >= 0.1*float64(len(d))
+	// kind classifies the step before row i: 0 or 1 for the two lengths,
+	// -1 for a break (a group change, a time not a number or going back,
+	// a pause, or a step off the quantum or shorter than both).
+	kind := func(i int) int {
+		s := t[i] - t[i-1]
+		if !same(i) || !(s >= 0) {
+			return -1
+		}
+		k := math.Round(s / q)
+		if math.Abs(s-k*q) > tol || k < m || k > m+1 {
+			return -1
+		}
+		return int(k - m)
+	}
+	// segment splits the log into runs that stay within one quantum of a
+	// line of slope dt, and counts the evidence, the breaks in the pattern
+	// (runs split where the stamps leave the band) and the steps off the
+	// quantum.
+	type seg struct{ lo, hi int }
+	segment := func(dt float64) (segs []seg, evidence, hidden, off int) {
+		start := 0
+		var rmin, rmax float64
+		var cnt [2]int
+		flush := func(end int) {
+			segs = append(segs, seg{start, end})
+			evidence += max(0, min(cnt[0], cnt[1])-1)
+			cnt = [2]int{}
+			rmin, rmax = 0, 0
+			start = end
+		}
+		for i := 1; i < n; i++ {
+			k := kind(i)
+			if k < 0 {
+				if s := t[i] - t[i-1]; same(i) && s >= 0 && math.Abs(s-math.Round(s/q)*q) > tol {
+					off++
+				} else if same(i) && s >= 0 && math.Round(s/q) < m {
+					off++
+				}
+				flush(i)
+				continue
+			}
+			r := (t[i] - t[start]) - float64(i-start)*dt
+			if r < rmin || r > rmax {
+				if math.Max(r, rmax)-math.Min(r, rmin) > q+tol {
+					hidden++
+					flush(i)
+					continue
+				}
+				rmin, rmax = math.Min(r, rmin), math.Max(r, rmax)
+			}
+			cnt[k]++
+		}
+		flush(n)
+		return segs, evidence, hidden, off
+	}
+	// slope is the least-squares slope of time against row shared by the
+	// runs segs (each its own intercept): Σ(i-ī)(t-t̄) / Σ(i-ī)², pooled.
+	slope := func(segs []seg) float64 {
+		var sxy, sxx float64
+		for _, s := range segs {
+			k := s.hi - s.lo
+			if k < 3 {
+				continue
+			}
+			mi := float64(k-1) / 2
+			var mt float64
+			for i := s.lo; i < s.hi; i++ {
+				mt += t[i] - t[s.lo]
+			}
+			mt /= float64(k)
+			for i := s.lo; i < s.hi; i++ {
+				x := float64(i-s.lo) - mi
+				sxy += x * (t[i] - t[s.lo] - mt)
+				sxx += x * x
+			}
+		}
+		return sxy / sxx
+	}
+	// Steps of one and two intervals, the longer rare, are also those of
+	// exact stamps with samples missing, and steps of none and one those
+	// of exact stamps with rows stored twice: such logs are taken as
+	// they are unless the rarer step makes up quantumAmbiguousShare of
+	// them.
+	var nk [2]int
+	for i := 1; i < n; i++ {
+		if k := kind(i); k >= 0 {
+			nk[k]++
+		}
+	}
+	if (m == 1 && float64(nk[1]) < quantumAmbiguousShare*float64(nk[0]+nk[1])) ||
+		(m == 0 && float64(nk[0]) < quantumAmbiguousShare*float64(nk[0]+nk[1])) {
+		return nil, nil
+	}
+	// The first slope from the runs between breaks; then the runs are
+	// split where the stamps leave the band (a missing sample hidden in a
+	// step of the two lengths), the slope found again from them, and the
+	// runs split with it.
+	var segs []seg
+	start := 0
+	for i := 1; i <= n; i++ {
+		if i == n || kind(i) < 0 {
+			segs = append(segs, seg{start, i})
+			start = i
+		}
+	}
+	dt := slope(segs)
+	var evidence, hidden, off int
+	for pass := range 2 {
+		if !(dt > 0) {
+			return nil, nil
+		}
+		segs, evidence, hidden, off = segment(dt)
+		if pass == 0 {
+			dt = slope(segs)
+		}
+	}
+	if evidence < quantumMinEvidence || 10*hidden > evidence || float64(off) > 1e-3*float64(n) || !(dt > 0) {
+		if looks {
+			return nil, tq
+		}
+		return nil, nil
+	}
+	tq.Uniform, tq.Interval = true, dt
+	out := make([]float64, n)
+	for _, s := range segs {
+		var a float64
+		for i := s.lo; i < s.hi; i++ {
+			a += (t[i] - t[s.lo]) - float64(i-s.lo)*dt
+		}
+		a /= float64(s.hi - s.lo)
+		for i := s.lo; i < s.hi; i++ {
+			out[i] = t[s.lo] + (a + float64(i-s.lo)*dt)
+			if sh := math.Abs(out[i] - t[i]); sh > tq.MaxShift {
+				tq.MaxShift = sh
+			}
+		}
+		if s.hi-s.lo >= 2 {
+			tq.Runs++
+			tq.Rows += s.hi - s.lo
+		}
+	}
+	return out, tq
+}
+
+// quantumWarning words what inspect found of quantised stamps; part: only
+// the first rows were looked at.
+func quantumWarning(tq *TimeQuantum, part bool) string {
+	from := ""
+	if part {
+		from = fmt.Sprintf(" (from the first %d rows)", keepSteps)
+	}
+	if !tq.Uniform {
+		return fmt.Sprintf("time: the stamps look quantised to %s s (steps of %s and %s s), coarser than the sampling, but do not fit a steady sampling%s: each time may be off by up to %s s, which turns an AC phase by 360° × frequency × that; write the times with more digits",
+			short(tq.Quantum), short(tq.Steps[0]), short(tq.Steps[1]), from, short(tq.Quantum))
+	}
+	return fmt.Sprintf("time: the stamps are quantised to %s s, coarser than the sample interval: the steps between rows take %s and %s s, as a steady %s Hz sampling written to %s s gives (the least-squares line of time against row within %s)%s; those are not gaps or repeated rows. AC demodulation re-times the samples on that line (by up to %s s)",
+		short(tq.Quantum), short(tq.Steps[0]), short(tq.Steps[1]), short(1/tq.Interval), short(tq.Quantum), runsWord(tq.Runs), from, short(tq.MaxShift))
+}
+
+// runsWord is "the run" or "each of the N continuous runs".
+func runsWord(n int) string {
+	if n <= 1 {
+		return "the one continuous run"
+	}
+	return fmt.Sprintf("each of %d continuous runs", n)
+}
+
+// short formats v to four significant digits.
+func short(v float64) string { return strconv.FormatFloat(v, 'g', 4, 64) }
 
 func median(v []float64) float64 {
 	s := append([]float64(nil), v...)

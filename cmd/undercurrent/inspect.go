@@ -234,7 +234,11 @@ func printInspection(w io.Writer, in *ingest.Inspection) {
 			// give.
 			gaps += fmt.Sprintf(", longest %s s after data row %d of %d", short(g.Length), g.Row+1, in.Rows)
 		}
-		fmt.Fprintf(tw, "sampling\tmedian step %s s (%s Hz); %s\n", short(t.Interval), short(t.Rate), gaps)
+		step := "median step" // a quantised log's is its sampling's (warned)
+		if t.Quantum != nil && t.Quantum.Uniform {
+			step = "sample interval"
+		}
+		fmt.Fprintf(tw, "sampling\t%s %s s (%s Hz); %s\n", step, short(t.Interval), short(t.Rate), gaps)
 	}
 	if t.Backwards > 0 || t.Repeated > 0 {
 		fmt.Fprintf(tw, "order\t%s backwards, %s\n", plural(t.Backwards, "step"), plural(t.Repeated, "repeated time"))

@@ -303,7 +303,7 @@ one current. When a log has a group column whose groups are traverses, or
 the readings run along the fitted line for more than 20 times its depth,
 the run warns and suggests --group-by. Without --despike, each log is
 checked for spikes (readings more than 10 robust standard deviations from
-the running median of their neighbours); when at least 0.1% of readings
+the local trend of their neighbours); when at least 0.1% of readings
 are spikes the run warns and suggests --despike. These warnings come first
 in the summary's, the result document's and the report's warnings.
 
@@ -1188,7 +1188,15 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 		}
 		return nil
 	}
-	res, win, warns, hints, err := demodulateAC(o, s) // acchecks.go
+	// Stamps quantised coarser than the sampling (a steady 800 Hz written
+	// to the millisecond) are rebuilt on the sampling they fit, here so
+	// that the rate and the checks see it too; stamps that only look
+	// quantised are warned about by the demodulation.
+	if rs, w := calibrate.RetimeSamples(s, o.freq); rs != s {
+		s = rs
+		sv.warnings = append(sv.warnings, s.Source+": "+w)
+	}
+	res, _, warns, hints, err := demodulateAC(o, s) // acchecks.go
 	if err != nil {
 		return noWindowAdvice(err, o)
 	}
@@ -1213,7 +1221,8 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 		}
 	}
 	if sv.doc.Signal.WindowS == 0 {
-		sv.doc.Signal = report.Signal{Mode: report.SignalAC, FrequencyHz: res.Freq, WindowS: win, NuisanceHz: res.Nuisance}
+		// The window fitted: a whole number of samples (res.Window).
+		sv.doc.Signal = report.Signal{Mode: report.SignalAC, FrequencyHz: res.Freq, WindowS: res.Window, NuisanceHz: res.Nuisance}
 	}
 	for _, w := range res.Windows {
 		if o.groupBy != "" && w.Group == "" {
@@ -1250,7 +1259,11 @@ func noWindowAdvice(err error, o *locateOptions) error {
 	}
 	var do []string
 	b := nw.Breaks
-	if b.Repeats+b.Backwards+b.NotANumber > 0 {
+	switch {
+	case nw.Quantum > 0:
+		// Times written too coarsely: their repeats are rows of their own.
+		do = append(do, fmt.Sprintf("write the times with more digits than their %.4g s (the repeated times are readings of their own: keep those rows)", nw.Quantum))
+	case b.Repeats+b.Backwards+b.NotANumber > 0:
 		do = append(do, "give every row its own time, increasing (remove repeated rows; \"undercurrent inspect\" counts repeated times)")
 	}
 	if b.Pauses > 0 {

@@ -14,7 +14,7 @@ import (
 // left in the readings because --despike was.
 
 // spikeSigmas is how far, in robust standard deviations, a reading must
-// depart from the running median of its neighbours to count as a spike
+// depart from the local trend of its neighbours to count as a spike
 // for the warning. It is twice calibrate.Despike's default cut-off, so
 // that the warning does not fire on noise: for Gaussian noise a departure
 // of 10 sigma has a probability of about 1.5e-23 (the normal tail,
@@ -32,7 +32,9 @@ const spikeFraction = 1e-3
 // spikeWarning runs the Hampel filter that --despike uses, with the
 // stricter spikeSigmas cut-off, over each run of rows of one group (or
 // the whole log), and returns a warning when at least spikeFraction of
-// the readings (and at least two) are spikes; "" otherwise.
+// the readings (and at least one) are spikes; "" otherwise. A single
+// spike in a traverse of a few hundred readings, 800 nT beside a 1333 nT
+// anomaly, pulled the depth 2.8 sigma off.
 func spikeWarning(path string, s *ingest.Samples) (string, error) {
 	n := s.Len()
 	if n == 0 {
@@ -60,10 +62,10 @@ func spikeWarning(path string, s *ingest.Samples) (string, error) {
 		}
 		lo = hi
 	}
-	if spikes < 2 || float64(spikes) < spikeFraction*float64(n) {
+	if spikes == 0 || float64(spikes) < spikeFraction*float64(n) {
 		return "", nil
 	}
-	return fmt.Sprintf("%s: spikes in %s of readings (%d of %d depart from the running median of their neighbours by more than %d robust standard deviations): they can pull the fit far off; rerun with --despike",
+	return fmt.Sprintf("%s: spikes in %s of readings (%d of %d depart from the local trend of their neighbours by more than %d robust standard deviations): they can pull the fit far off; rerun with --despike",
 		path, percent(spikes, n), spikes, n, spikeSigmas), nil
 }
 
