@@ -7,6 +7,8 @@ import (
 	"math/cmplx"
 	"slices"
 	"strings"
+
+	"gonum.org/v1/gonum/stat/distuv"
 )
 
 // polishKeep is the multi-start budget: the starts are ranked by the projected sum of
@@ -84,6 +86,13 @@ func FitLines(p *Problem, set *Settings) (*Result, error) {
 	var why string
 	if err != nil {
 		bad, why = true, err.Error()
+	} else if s.Count > 1 {
+		// Lines asked for (Settings.Count) whose current the readings do not
+		// resolve by the guard's measure mark no conductor, and their angles
+		// are not judged: two lines forced on a one-cable traverse had the
+		// cable's azimuth held 10 degrees off for the phantom's sake, missing
+		// the readings by 50 times their noise.
+		bad, why = singleAnglesUndeterminedK(res, f.currentK())
 	} else {
 		bad, why = singleAnglesUndetermined(res)
 	}
@@ -96,9 +105,60 @@ func FitLines(p *Problem, set *Settings) (*Result, error) {
 		// The free fit stands (with its notes on what it did not resolve), or its error.
 		return res, err
 	}
+	if err == nil && !strings.Contains(why, "not resolved") {
+		// The angles were fitted, only with a sigma too large for the
+		// linearisation: when holding them perpendicular and horizontal fits the
+		// readings worse than the free fit by more than chance allows, the held
+		// angles are wrong and so are the held fit's current and position, beyond
+		// sigmas that carry nothing of the angles. The free fit stands, its
+		// sigmas approximate but covering the angles' doubt. A 15 A cable
+		// running 50 degrees off the perpendicular and beyond the end of a 24 m
+		// traverse was held so and read 24.6 ± 2.2 A (4.4 sigma high), where
+		// the free fit gives 16.7 ± 5.3 A at 135 ± 25 degrees.
+		if d, lim, ok := holdRejected(res, res2); ok {
+			res.Notes = append(res.Notes, fmt.Sprintf("azimuth and dip fitted from the traverse are poorly determined (%s), but holding them perpendicular to it and horizontal raises chi-square by %.3g (more than %.3g, the 99.73%% point for the angles held): the angles are fitted, and their sigmas and those of what depends on them are approximate", why, d, lim))
+			res.Starts += g.starts
+			return res, nil
+		}
+	}
 	res2.Starts += f.starts
 	res2.Notes = append(res2.Notes, "azimuth and dip fitted from the traverse were not determined ("+why+"): held perpendicular to it and horizontal")
+	if err == nil {
+		// The free fit did not determine the angles (one at the bound of its
+		// search, or lost to rank), but fitted the readings far better than
+		// the angles held: the held fit's current and position are biased
+		// beyond their sigmas (a 15 A cable 50 degrees off the perpendicular,
+		// beyond the end of a 24 m traverse, read 24.6 ± 2.2 A held; a false
+		// "current joining" followed), and neither fit is to be used.
+		if d, lim, ok := holdRejected(res, res2); ok {
+			res2.Notes = append(res2.Notes, fmt.Sprintf("%s: holding them raises chi-square by %.3g over the fit with them free (more than %.3g, the 99.73%% point for the angles held), so the line does not cross the traverse square to it and level; its current and position are biased beyond their sigmas (a conductor beyond the traverse's end, or crossing it obliquely: survey across it there)",
+				HeldAnglesRejectedNote, d, lim))
+		}
+	}
 	return res2, nil
+}
+
+// HeldAnglesRejectedNote begins the note (Result.Notes) of a single-traverse fit whose
+// line angles were held perpendicular to the traverse and level because the fit with
+// them free did not determine them (see FitLines), where the readings reject the held
+// angles: the current and position reported are biased beyond their sigmas.
+const HeldAnglesRejectedNote = "the angles held are rejected by the readings"
+
+// holdRejected reports whether the fit with the angles held (held) misses the
+// readings by more than the free fit (free) by more than chance allows: the rise in
+// chi-square, on the free fit's noise, beyond the 99.73% point (three sigma) of the
+// chi-square distribution with as many degrees of freedom as angles were held
+// (Wilks' theorem: twice the log-likelihood ratio of nested models). It returns the
+// rise and the limit.
+func holdRejected(free, held *Result) (rise, limit float64, rejected bool) {
+	m := held.DOF - free.DOF
+	if m <= 0 || !(free.Sigma > 0) || !(held.Sigma > 0) {
+		return 0, 0, false
+	}
+	s2 := free.Sigma * free.Sigma
+	rise = (held.Chi2*held.Sigma*held.Sigma - free.Chi2*s2) / s2
+	limit = distuv.ChiSquared{K: float64(m)}.Quantile(1 - 0.0027)
+	return rise, limit, rise > limit
 }
 
 // run fits Settings.Count lines, or chooses the count, and reports the fit.
@@ -107,6 +167,7 @@ func (f *fitter) run() (*Result, error) {
 	if s.Count > 0 {
 		var prev *candidate
 		var err error
+		chain := make([]*candidate, 0, s.Count)
 		for k := 1; k <= s.Count; k++ {
 			// Fits with fewer lines only seed the next: a rough one will do.
 			f.rough = k < s.Count
@@ -114,8 +175,15 @@ func (f *fitter) run() (*Result, error) {
 			if err != nil {
 				return nil, err
 			}
+			chain = append(chain, prev)
 		}
-		return f.report(prev, nil)
+		f.rough = false
+		c, unsupported := f.forcedCount(prev, chain)
+		res, err := f.report(c, nil)
+		if err == nil && unsupported != "" {
+			res.Notes = append(res.Notes, fmt.Sprintf("%s: %d lines were asked for, but the readings do not support them all (%s)", UnsupportedCountNote, s.Count, unsupported))
+		}
+		return res, err
 	}
 	var scores []ModelScore
 	var best, prev *candidate
@@ -224,6 +292,61 @@ func (f *fitter) run() (*Result, error) {
 		res.Notes = append(res.Notes, unresolved)
 	}
 	return res, err
+}
+
+// UnsupportedCountNote begins the note (Result.Notes) of a fit of the number of lines
+// asked for (Settings.Count) that the readings do not support: a line whose current
+// is not resolved, lines that coincide, a line at a bound of the search or deeper than
+// the survey resolves (the automatic count's guard). The lines are all reported, with
+// their own notes; the unsupported ones mark no conductor.
+const UnsupportedCountNote = "more lines than the readings support"
+
+// forcedCount returns the fit of the number of lines asked for (Settings.Count) from
+// its fit c, grown from rough fits of fewer lines (chain, one per count), and why
+// the guard refuses it, or "". When c misses the readings' noise, has collapsed, or is
+// refused, the count is fitted again from the full (not rough) fit of one line fewer
+// with a line added (fitK), whose sum of squares is at most that fit's: a fit of
+// more lines can never be worse than one of fewer plus a line carrying nothing. Of
+// the two, the one with the smaller sum of squares is kept, or, within about one
+// unit of chi-square, the one the guard accepts or whose lines have not collapsed.
+// Two lines forced on a one-cable traverse (25 A at 1.4 m under 2 nT) had been fitted
+// from the rough one-line fit as a collapsed ±I pair missing the readings by 106 nT,
+// where one line fits to the noise.
+func (f *fitter) forcedCount(c *candidate, chain []*candidate) (*candidate, string) {
+	n := len(c.sp.geom)
+	refused := func(c *candidate) string {
+		if why, _ := f.guard(c, math.Inf(1)); why != "" {
+			return why
+		}
+		if collapsed(c.sp, c.x) {
+			return "two lines collapsed onto one another"
+		}
+		return ""
+	}
+	why := refused(c)
+	if n < 2 || why == "" && f.atNoise(c.sp, c.rss) {
+		return c, why
+	}
+	var seed *candidate
+	if n > 2 {
+		seed = chain[n-3]
+	}
+	fewer, err := f.fitK(n-1, seed)
+	if err != nil {
+		return c, why
+	}
+	alt, err := f.fitK(n, fewer)
+	if err != nil {
+		return c, why
+	}
+	altWhy := refused(alt)
+	nr, _ := c.counts()
+	slack := math.Min(c.rss, alt.rss) / float64(nr) // about one unit of chi-square
+	if alt.rss < c.rss-slack || alt.rss <= c.rss+slack && altWhy == "" && why != "" {
+		alt.iters += c.iters
+		return alt, altWhy
+	}
+	return c, why
 }
 
 // UnresolvedLinesNote begins the note (Result.Notes) of an automatic count that
@@ -391,6 +514,12 @@ const singleAngleLimit = 15 * math.Pi / 180
 // Lines whose current is not significant are judged by the others (their position is
 // not determined either, and the result already says so).
 func singleAnglesUndetermined(r *Result) (bool, string) {
+	return singleAnglesUndeterminedK(r, 2)
+}
+
+// singleAnglesUndeterminedK is singleAnglesUndetermined judging only the lines whose
+// current exceeds k sigmas.
+func singleAnglesUndeterminedK(r *Result, k float64) (bool, string) {
 	lim := singleAngleLimit * 180 / math.Pi
 	inPair := make([]bool, len(r.Sources))
 	for _, pe := range r.Pairs {
@@ -402,7 +531,7 @@ func singleAnglesUndetermined(r *Result) (bool, string) {
 		}
 	}
 	for i, e := range r.Sources {
-		if e.Kind != "line" || inPair[i] || !(math.Abs(e.Current) > 2*e.CurrentSigma) {
+		if e.Kind != "line" || inPair[i] || !(math.Abs(e.Current) > k*e.CurrentSigma) {
 			continue
 		}
 		for _, n := range e.Notes {
@@ -1318,6 +1447,15 @@ const pairGain = 10.0
 // survey's half-width (plus a metre), in the guard.
 const maxDepthPerExtent = 3.0
 
+// currentK is the number of sigmas a line's current must exceed for the guard to keep
+// it: 3 for DC, phasorK for AC.
+func (f *fitter) currentK() float64 {
+	if f.sv.nrhs == 2 {
+		return phasorK
+	}
+	return 3
+}
+
 func (f *fitter) guard(c *candidate, gain float64) (why string, weak int) {
 	sum, err := f.summarise(c)
 	if err != nil {
@@ -1363,12 +1501,16 @@ func (f *fitter) guard(c *candidate, gain float64) (why string, weak int) {
 		if !e.Identifiable.Current {
 			return fmt.Sprintf("line %d current is not resolved by the data", i+1), i
 		}
-		k := 3.0
-		if f.sv.nrhs == 2 {
-			k = phasorK
-		}
+		k := f.currentK()
 		if !(math.Abs(e.Current) > k*e.CurrentSigma) {
 			return fmt.Sprintf("line %d current %.3g A is within %.3g sigma (%.3g A) of zero", i+1, e.Current, k, e.CurrentSigma), i
+		}
+	}
+	for i := range c.sp.geom {
+		// After the currents: such a line is as unsupported as one whose
+		// current is not resolved (the caller may refit without it).
+		if !inPair[i] && f.aboveSensors(&c.sp.geom[i]) {
+			return fmt.Sprintf("line %d passes above the sensors near the readings' centre", i+1), i
 		}
 	}
 	for i := range c.sp.geom {
@@ -1417,6 +1559,19 @@ func (f *fitter) misplaced(c *candidate) string {
 		}
 	}
 	return ""
+}
+
+// aboveSensors reports whether line g, at its point nearest the readings' centroid
+// (where its depth is reported), lies above the top of the search (Settings.MinDepth
+// below the lowest sensor). The search bounds the height of a line where it is
+// anchored, but a steeply dipping line rises from there: on a one-cable traverse
+// fitted with two lines the second was a 0.001 A line through the readings
+// "-0.53 m" deep, absorbing noise next to a sensor. No buried conductor lies there.
+func (f *fitter) aboveSensors(g *lineGeom) bool {
+	ln := g.line()
+	u := ln.Dir
+	pt := add(ln.Point, scale(u, dot(sub(f.sv.centroid, ln.Point), u)))
+	return pt[2] > g.zHi+1e-9
 }
 
 // pkgError adds context to an error from this package without repeating its
