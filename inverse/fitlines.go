@@ -116,7 +116,7 @@ func FitLines(p *Problem, set *Settings) (*Result, error) {
 		// traverse was held so and read 24.6 ± 2.2 A (4.4 sigma high), where
 		// the free fit gives 16.7 ± 5.3 A at 135 ± 25 degrees.
 		if d, lim, ok := holdRejected(res, res2); ok {
-			res.Notes = append(res.Notes, fmt.Sprintf("azimuth and dip fitted from the traverse are poorly determined (%s), but holding them perpendicular to it and horizontal raises chi-square by %.3g (more than %.3g, the 99.73%% point for the angles held): the angles are fitted, and their sigmas and those of what depends on them are approximate", why, d, lim))
+			res.Notes = append(res.Notes, fmt.Sprintf("%s (%s), but holding them perpendicular to it and horizontal raises chi-square by %.3g (more than %.3g, the 99.73%% point for the angles held): the angles are fitted, and their sigmas and those of what depends on them are approximate (linearised over a wide range)", AnglesApproximateNote, why, d, lim))
 			res.Starts += g.starts
 			return res, nil
 		}
@@ -133,10 +133,24 @@ func FitLines(p *Problem, set *Settings) (*Result, error) {
 		if d, lim, ok := holdRejected(res, res2); ok {
 			res2.Notes = append(res2.Notes, fmt.Sprintf("%s: holding them raises chi-square by %.3g over the fit with them free (more than %.3g, the 99.73%% point for the angles held), so the line does not cross the traverse square to it and level; its current and position are biased beyond their sigmas (a conductor beyond the traverse's end, or crossing it obliquely: survey across it there)",
 				HeldAnglesRejectedNote, d, lim))
+		} else if len(res2.Sources) > 0 && slices.Contains(res2.Sources[0].Notes, EdgeOfSearchNote) {
+			// Nor is a held fit whose line has run to the edge of the search:
+			// the readings would put it further out still (beside the same
+			// cable beyond a traverse's end, read 19.9 ± 2.1 A, 2.3 sigma high,
+			// 29 m from the readings' centre).
+			res2.Notes = append(res2.Notes, HeldAnglesRejectedNote+": with them held the line runs to the edge of the search region, so the line does not cross the traverse square to it and level; its current and position are biased beyond their sigmas (a conductor beyond the traverse's end, or crossing it obliquely: survey across it there)")
 		}
 	}
 	return res2, nil
 }
+
+// AnglesApproximateNote begins the note (Result.Notes) of a single-traverse fit whose
+// line angles the readings determine only to more than singleAngleLimit, where
+// holding them (FitLines) is rejected by the readings: the fit is reported with the
+// angles fitted, and its sigmas, linearised over a wide range of angle, are
+// approximate (a depth of 1.3 m was read 2.19 ± 0.08 m so). Report takes such a fit
+// as poor, to be used with care.
+const AnglesApproximateNote = "azimuth and dip fitted from the traverse are poorly determined"
 
 // HeldAnglesRejectedNote begins the note (Result.Notes) of a single-traverse fit whose
 // line angles were held perpendicular to the traverse and level because the fit with

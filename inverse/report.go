@@ -405,6 +405,9 @@ func (f *fitter) summariseAsIs(c *candidate) (*summary, error) {
 			e.Notes = append(e.Notes, "held at the minimum depth below the sensors: the depth is not determined")
 			id.Depth = false
 		}
+		if g.s <= g.sLo+1e-9 || g.s >= g.sHi-1e-9 {
+			e.Notes = append(e.Notes, EdgeOfSearchNote)
+		}
 		if f.aboveSensors(&sp.geom[l]) {
 			e.Notes = append(e.Notes, AboveSensorsNote)
 		}
@@ -514,6 +517,11 @@ func (f *fitter) summariseAsIs(c *candidate) (*summary, error) {
 // readings): it marks no buried conductor, and stands for field the other lines leave
 // unexplained, often the noise of readings close to it.
 const AboveSensorsNote = "the line passes above the sensors near the readings' centre (it dips steeply): not a buried conductor; it stands for field the other lines leave unexplained"
+
+// EdgeOfSearchNote is the note (SourceEstimate.Notes) of a line that lies at the edge
+// of the region searched across the readings (twice their extent plus 5 m from their
+// centre): the readings would put it further out, and its position is not determined.
+const EdgeOfSearchNote = "at the edge of the region searched (twice the readings' extent plus 5 m from their centre): the position is not determined"
 
 // weakLine is the fraction of the strongest current below which a line gets a caution.
 const weakLine = 0.02

@@ -417,6 +417,18 @@ func noLineCurrent(ss []inverse.SourceEstimate, ac bool) bool {
 	return lines > 0
 }
 
+// anglesApproximate returns the fit's note that its line angles, fitted
+// from a single traverse, are so poorly determined that its sigmas are
+// approximate (inverse.AnglesApproximateNote), or "".
+func anglesApproximate(notes []string) string {
+	for _, n := range notes {
+		if strings.HasPrefix(n, inverse.AnglesApproximateNote) {
+			return n
+		}
+	}
+	return ""
+}
+
 // heldRejected returns the fit's note that its held line angles are
 // rejected by the readings (inverse.HeldAnglesRejectedNote), or "".
 func heldRejected(notes []string) string {
@@ -568,6 +580,8 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute boo
 		g.Problem = "no conductor was fitted"
 	case held != "" && !weak:
 		g.Problem = "the fit failed: " + held
+	case g.OK && anglesApproximate(res.Notes) != "":
+		g.Problem = anglesApproximate(res.Notes)
 	case weak:
 		s := res.Sources[0]
 		g.Problem = fmt.Sprintf("no current found: the strongest line's current, %s A, is within %.3g sigma of zero (no conductor under this group, or too weak a signal), so its position and depth mean nothing",

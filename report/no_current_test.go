@@ -46,7 +46,8 @@ func TestNoCurrentAsksEveryLine(t *testing.T) {
 // TestHeldAnglesRejectedFails: a single-traverse fit whose angles were held where
 // the readings reject them (inverse.HeldAnglesRejectedNote) has a current and
 // position biased beyond their sigmas (a 15 A cable read 24.6 ± 2.2 A), and its
-// group is a failed fit, left out of the route's profile.
+// group is a failed fit, left out of the route's profile; one whose angles were
+// fitted but only roughly (inverse.AnglesApproximateNote) is used with care.
 func TestHeldAnglesRejectedFails(t *testing.T) {
 	cable := inverse.SourceEstimate{Current: 24.6, CurrentSigma: 2.2, Depth: 1.35, DepthSigma: 0.14}
 	note := inverse.HeldAnglesRejectedNote + ": holding them raises chi-square by 548"
@@ -57,5 +58,13 @@ func TestHeldAnglesRejectedFails(t *testing.T) {
 	g, _ = buildGroup(noCurrentFixture(nil, cable), false, 0, 0, false)
 	if !g.OK || g.Problem != "" {
 		t.Errorf("the same fit without the note: OK %v, problem %q; want sound", g.OK, g.Problem)
+	}
+	// Angles fitted only to more than 15 degrees, where holding them is
+	// rejected: the fit is used, with care (its linearised sigmas are
+	// approximate).
+	note = inverse.AnglesApproximateNote + " (line 1: azimuth sigma 25.4 deg)"
+	g, st = buildGroup(noCurrentFixture([]string{note}, cable), false, 0, 0, false)
+	if !g.OK || !st.OK || g.Problem != note {
+		t.Errorf("angles approximate: OK %v, station OK %v, problem %q; want used with the note as its problem", g.OK, st.OK, g.Problem)
 	}
 }
