@@ -340,8 +340,11 @@ func (f *fitter) forcedCount(c *candidate, chain []*candidate) (*candidate, stri
 		}
 		return ""
 	}
+	if n < 2 {
+		return c, ""
+	}
 	why := refused(c)
-	if n < 2 || why == "" && f.atNoise(c.sp, c.rss) {
+	if why == "" && f.atNoise(c.sp, c.rss) {
 		return c, why
 	}
 	var seed *candidate

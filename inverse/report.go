@@ -103,7 +103,7 @@ func (f *fitter) summariseOrdered(c *candidate) (*summary, error) {
 			}
 		}
 	}
-	if idx := f.foundFirst(su, len(c.sp.geom)); idx != nil {
+	if idx := f.foundFirst(su, len(c.sp.geom)); len(idx) > 0 {
 		if err := c.permute(idx); err != nil {
 			return nil, err
 		}
@@ -121,6 +121,9 @@ func (f *fitter) summariseOrdered(c *candidate) (*summary, error) {
 // listed before the cable's 19.992 ± 0.050 A, and the traverse was reported as
 // having no current.
 func (f *fitter) foundFirst(su *summary, nl int) []int {
+	if nl < 2 {
+		return nil
+	}
 	inPair := make([]bool, len(su.lines))
 	for _, pe := range su.pairs {
 		inPair[pe.Lines[0]], inPair[pe.Lines[1]] = true, true
@@ -130,7 +133,7 @@ func (f *fitter) foundFirst(su *summary, nl int) []int {
 		e := &su.lines[i]
 		return e.Kind == "line" && (inPair[i] || e.Identifiable.Current && math.Abs(e.Current) > k*e.CurrentSigma)
 	}
-	if nl < 2 || found(0) {
+	if found(0) {
 		return nil
 	}
 	var yes, no []int
