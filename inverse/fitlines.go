@@ -7,6 +7,8 @@ import (
 	"math/cmplx"
 	"slices"
 	"strings"
+
+	"gonum.org/v1/gonum/stat/distuv"
 )
 
 // polishKeep is the multi-start budget: the starts are ranked by the projected sum of
@@ -84,6 +86,13 @@ func FitLines(p *Problem, set *Settings) (*Result, error) {
 	var why string
 	if err != nil {
 		bad, why = true, err.Error()
+	} else if s.Count > 1 {
+		// Lines asked for (Settings.Count) whose current the readings do not
+		// resolve by the guard's measure mark no conductor, and their angles
+		// are not judged: two lines forced on a one-cable traverse had the
+		// cable's azimuth held 10 degrees off for the phantom's sake, missing
+		// the readings by 50 times their noise.
+		bad, why = singleAnglesUndeterminedK(res, f.currentK())
 	} else {
 		bad, why = singleAnglesUndetermined(res)
 	}
@@ -96,9 +105,74 @@ func FitLines(p *Problem, set *Settings) (*Result, error) {
 		// The free fit stands (with its notes on what it did not resolve), or its error.
 		return res, err
 	}
+	if err == nil && !strings.Contains(why, "not resolved") {
+		// The angles were fitted, only with a sigma too large for the
+		// linearisation: when holding them perpendicular and horizontal fits the
+		// readings worse than the free fit by more than chance allows, the held
+		// angles are wrong and so are the held fit's current and position, beyond
+		// sigmas that carry nothing of the angles. The free fit stands, its
+		// sigmas approximate but covering the angles' doubt. A 15 A cable
+		// running 50 degrees off the perpendicular and beyond the end of a 24 m
+		// traverse was held so and read 24.6 ± 2.2 A (4.4 sigma high), where
+		// the free fit gives 16.7 ± 5.3 A at 135 ± 25 degrees.
+		if d, lim, ok := holdRejected(res, res2); ok {
+			res.Notes = append(res.Notes, fmt.Sprintf("%s (%s), but holding them perpendicular to it and horizontal raises chi-square by %.3g (more than %.3g, the 99.73%% point for the angles held): the angles are fitted, and their sigmas and those of what depends on them are approximate (linearised over a wide range)", AnglesApproximateNote, why, d, lim))
+			res.Starts += g.starts
+			return res, nil
+		}
+	}
 	res2.Starts += f.starts
 	res2.Notes = append(res2.Notes, "azimuth and dip fitted from the traverse were not determined ("+why+"): held perpendicular to it and horizontal")
+	if err == nil {
+		// The free fit did not determine the angles (one at the bound of its
+		// search, or lost to rank), but fitted the readings far better than
+		// the angles held: the held fit's current and position are biased
+		// beyond their sigmas (a 15 A cable 50 degrees off the perpendicular,
+		// beyond the end of a 24 m traverse, read 24.6 ± 2.2 A held; a false
+		// "current joining" followed), and neither fit is to be used.
+		if d, lim, ok := holdRejected(res, res2); ok {
+			res2.Notes = append(res2.Notes, fmt.Sprintf("%s: holding them raises chi-square by %.3g over the fit with them free (more than %.3g, the 99.73%% point for the angles held), so the line does not cross the traverse square to it and level; its current and position are biased beyond their sigmas (a conductor beyond the traverse's end, or crossing it obliquely: survey across it there)",
+				HeldAnglesRejectedNote, d, lim))
+		} else if len(res2.Sources) > 0 && slices.Contains(res2.Sources[0].Notes, EdgeOfSearchNote) {
+			// Nor is a held fit whose line has run to the edge of the search:
+			// the readings would put it further out still (beside the same
+			// cable beyond a traverse's end, read 19.9 ± 2.1 A, 2.3 sigma high,
+			// 29 m from the readings' centre).
+			res2.Notes = append(res2.Notes, HeldAnglesRejectedNote+": with them held the line runs to the edge of the search region, so the line does not cross the traverse square to it and level; its current and position are biased beyond their sigmas (a conductor beyond the traverse's end, or crossing it obliquely: survey across it there)")
+		}
+	}
 	return res2, nil
+}
+
+// AnglesApproximateNote begins the note (Result.Notes) of a single-traverse fit whose
+// line angles the readings determine only to more than singleAngleLimit, where
+// holding them (FitLines) is rejected by the readings: the fit is reported with the
+// angles fitted, and its sigmas, linearised over a wide range of angle, are
+// approximate (a depth of 1.3 m was read 2.19 ± 0.08 m so). Report takes such a fit
+// as poor, to be used with care.
+const AnglesApproximateNote = "azimuth and dip fitted from the traverse are poorly determined"
+
+// HeldAnglesRejectedNote begins the note (Result.Notes) of a single-traverse fit whose
+// line angles were held perpendicular to the traverse and level because the fit with
+// them free did not determine them (see FitLines), where the readings reject the held
+// angles: the current and position reported are biased beyond their sigmas.
+const HeldAnglesRejectedNote = "the angles held are rejected by the readings"
+
+// holdRejected reports whether the fit with the angles held (held) misses the
+// readings by more than the free fit (free) by more than chance allows: the rise in
+// chi-square, on the free fit's noise, beyond the 99.73% point (three sigma) of the
+// chi-square distribution with as many degrees of freedom as angles were held
+// (Wilks' theorem: twice the log-likelihood ratio of nested models). It returns the
+// rise and the limit.
+func holdRejected(free, held *Result) (rise, limit float64, rejected bool) {
+	m := held.DOF - free.DOF
+	if m <= 0 || !(free.Sigma > 0) || !(held.Sigma > 0) {
+		return 0, 0, false
+	}
+	s2 := free.Sigma * free.Sigma
+	rise = (held.Chi2*held.Sigma*held.Sigma - free.Chi2*s2) / s2
+	limit = distuv.ChiSquared{K: float64(m)}.Quantile(1 - 0.0027)
+	return rise, limit, rise > limit
 }
 
 // run fits Settings.Count lines, or chooses the count, and reports the fit.
@@ -107,6 +181,7 @@ func (f *fitter) run() (*Result, error) {
 	if s.Count > 0 {
 		var prev *candidate
 		var err error
+		chain := make([]*candidate, 0, s.Count)
 		for k := 1; k <= s.Count; k++ {
 			// Fits with fewer lines only seed the next: a rough one will do.
 			f.rough = k < s.Count
@@ -114,8 +189,15 @@ func (f *fitter) run() (*Result, error) {
 			if err != nil {
 				return nil, err
 			}
+			chain = append(chain, prev)
 		}
-		return f.report(prev, nil)
+		f.rough = false
+		c, unsupported := f.forcedCount(prev, chain)
+		res, err := f.report(c, nil)
+		if err == nil && unsupported != "" {
+			res.Notes = append(res.Notes, fmt.Sprintf("%s: %d lines were asked for, but the readings do not support them all (%s)", UnsupportedCountNote, s.Count, unsupported))
+		}
+		return res, err
 	}
 	var scores []ModelScore
 	var best, prev *candidate
@@ -224,6 +306,87 @@ func (f *fitter) run() (*Result, error) {
 		res.Notes = append(res.Notes, unresolved)
 	}
 	return res, err
+}
+
+// UnsupportedCountNote begins the note (Result.Notes) of a fit of the number of lines
+// asked for (Settings.Count) that the readings do not support: a line whose current
+// is not resolved, lines that coincide, a line at a bound of the search or deeper than
+// the survey resolves (the automatic count's guard). The lines are all reported, with
+// their own notes; the unsupported ones mark no conductor.
+const UnsupportedCountNote = "more lines than the readings support"
+
+// forcedCount returns the fit of the number of lines asked for (Settings.Count) from
+// its fit c, grown from rough fits of fewer lines (chain, one per count), and why
+// the guard refuses it, or "". When c misses the readings' noise, has collapsed, or is
+// refused, the count is fitted again from the full (not rough) fit of one line fewer
+// with a line added (fitK), whose sum of squares is at most that fit's: a fit of
+// more lines can never be worse than one of fewer plus a line carrying nothing. Of
+// the two, the one with the smaller sum of squares is kept, or, within about one
+// unit of chi-square, the one the guard accepts or that has more lines whose current
+// is resolved (two lines over one 25 A cable had split it into 23 ± 18 A and
+// 1.9 ± 18 A, 2.7 units of chi-square below the cable whole, 25.03 ± 0.03 A, beside
+// a line carrying nothing).
+// Two lines forced on a one-cable traverse (25 A at 1.4 m under 2 nT) had been fitted
+// from the rough one-line fit as a collapsed ±I pair missing the readings by 106 nT,
+// where one line fits to the noise.
+func (f *fitter) forcedCount(c *candidate, chain []*candidate) (*candidate, string) {
+	n := len(c.sp.geom)
+	refused := func(c *candidate) string {
+		if why, _ := f.guard(c, math.Inf(1)); why != "" {
+			return why
+		}
+		if collapsed(c.sp, c.x) {
+			return "two lines collapsed onto one another"
+		}
+		return ""
+	}
+	if n < 2 {
+		return c, ""
+	}
+	why := refused(c)
+	if why == "" && f.atNoise(c.sp, c.rss) {
+		return c, why
+	}
+	var seed *candidate
+	if n > 2 {
+		seed = chain[n-3]
+	}
+	fewer, err := f.fitK(n-1, seed)
+	if err != nil {
+		return c, why
+	}
+	alt, err := f.fitK(n, fewer)
+	if err != nil {
+		return c, why
+	}
+	altWhy := refused(alt)
+	nr, _ := c.counts()
+	slack := math.Min(c.rss, alt.rss) / float64(nr) // about one unit of chi-square
+	if alt.rss < c.rss-slack || alt.rss <= c.rss+slack && (altWhy == "" && why != "" || f.resolvedLines(alt) > f.resolvedLines(c)) {
+		alt.iters += c.iters
+		return alt, altWhy
+	}
+	return c, why
+}
+
+// resolvedLines is the number of c's lines whose current the readings resolve (beyond
+// currentK sigmas), or that belong to a go-and-return pair (PairEstimate).
+func (f *fitter) resolvedLines(c *candidate) int {
+	su, err := f.summarise(c)
+	if err != nil {
+		return 0
+	}
+	inPair := make([]bool, len(su.lines))
+	for _, pe := range su.pairs {
+		inPair[pe.Lines[0]], inPair[pe.Lines[1]] = true, true
+	}
+	k, n := f.currentK(), 0
+	for i, e := range su.lines {
+		if e.Kind == "line" && (inPair[i] || e.Identifiable.Current && math.Abs(e.Current) > k*e.CurrentSigma) {
+			n++
+		}
+	}
+	return n
 }
 
 // UnresolvedLinesNote begins the note (Result.Notes) of an automatic count that
@@ -391,6 +554,12 @@ const singleAngleLimit = 15 * math.Pi / 180
 // Lines whose current is not significant are judged by the others (their position is
 // not determined either, and the result already says so).
 func singleAnglesUndetermined(r *Result) (bool, string) {
+	return singleAnglesUndeterminedK(r, 2)
+}
+
+// singleAnglesUndeterminedK is singleAnglesUndetermined judging only the lines whose
+// current exceeds k sigmas.
+func singleAnglesUndeterminedK(r *Result, k float64) (bool, string) {
 	lim := singleAngleLimit * 180 / math.Pi
 	inPair := make([]bool, len(r.Sources))
 	for _, pe := range r.Pairs {
@@ -402,7 +571,7 @@ func singleAnglesUndetermined(r *Result) (bool, string) {
 		}
 	}
 	for i, e := range r.Sources {
-		if e.Kind != "line" || inPair[i] || !(math.Abs(e.Current) > 2*e.CurrentSigma) {
+		if e.Kind != "line" || inPair[i] || !(math.Abs(e.Current) > k*e.CurrentSigma) {
 			continue
 		}
 		for _, n := range e.Notes {
@@ -542,6 +711,26 @@ func (f *fitter) fitK(k int, prev *candidate) (*candidate, error) {
 			best = v
 		}
 	}
+	if k >= 2 && prev != nil && f.sv.single && !f.atNoise(prev.sp, prev.rss) && f.misplaced(best) != "" {
+		// On a traverse where the fit with fewer lines misses the noise, the
+		// best fit's new line is one the guard refuses for where it lies
+		// (deeper than the survey resolves, at a bound): a conductor beyond
+		// the traverse's ends leaves a residual that rises to one end, which
+		// the starts above place within the traverse, and a deep line far
+		// below stands for it. Lines started beyond either end are tried,
+		// and kept when they fit better and lie where the guard accepts.
+		// Beside a 20 A cable, a 5 A pipe crossing 4 to 7 m beyond the ends
+		// of 10 m traverses was fitted as a line 33 m down, refused, and the
+		// cable read 2.5 to 4% (13 to 16 sigma) low. (Where the fewer lines
+		// reach the noise there is nothing for such a line to find: on a
+		// one-cable traverse these starts had cost a third of the fit.)
+		if bs := f.beyondStarts(prev); len(bs) > 0 {
+			v, err := f.bestOf(bs, false)
+			if err == nil && v.rss < best.rss && f.misplaced(v) == "" {
+				best = v
+			}
+		}
+	}
 	if k > 2 && prev != nil && !f.atNoise(best.sp, best.rss) {
 		// A fit whose lines collapsed is not taken from these starts: over
 		// three cores 0.2 m apart one such (a line dipole and a line) fitted
@@ -636,6 +825,53 @@ func (f *fitter) stackedStarts(prev *candidate) []start {
 			g[i] = a
 			g = append(g, b)
 			starts = append(starts, start{g, append([]dipGeom(nil), dips...)})
+		}
+	}
+	return starts
+}
+
+// beyondStarts returns starts for a k-line fit from the (k-1)-line fit prev with a
+// line added beyond either end of the readings across prev's strongest line: half and
+// one of the survey's half-widths (extent) past its end, at depths below the sensors
+// of 0.3 and 0.7 times that distance past the end (at least 0.5 m). A conductor
+// passing beyond the readings' ends is not seeded by the residual's peak, which lies
+// within them.
+func (f *fitter) beyondStarts(prev *candidate) []start {
+	base, dips := prev.sp.geom, prev.sp.dips
+	if len(base) == 0 {
+		return nil
+	}
+	holdAz, holdDip, az, dip := f.holds()
+	if !holdAz {
+		az = base[0].az
+	}
+	sv := f.sv
+	n0 := [3]float64{math.Cos(az), -math.Sin(az), 0}
+	// On a single traverse a new line starts square to it, held, and its
+	// angles are freed only for the final polish (release), from where a
+	// line crossing the traverse's line obliquely beyond its end slid down
+	// to a deep phantom; such lines start free too, 45 degrees either way.
+	turns := []float64{0}
+	free := sv.single && holdAz && f.set.Azimuth == nil && !f.holdSingle
+	if free {
+		turns = append(turns, -math.Pi/4, math.Pi/4)
+	}
+	var starts []start
+	for _, side := range []float64{-1, 1} {
+		for _, m := range []float64{0.5, 1} {
+			past := m * sv.extent
+			p := add(sv.anchor, scale(n0, side*(sv.extent+past)))
+			for _, dm := range []float64{0.3, 0.7} {
+				for _, t := range turns {
+					sd := seed{e: p[0], n: p[1], az: az + t, z: sv.zmean - math.Max(dm*past, 0.5)}
+					nl := sv.geomFrom(sd, holdAz && t == 0, holdDip, dip, f.set.MinDepth)
+					if t != 0 {
+						nl.azLo, nl.azHi = az-singleAzimuthRange, az+singleAzimuthRange
+					}
+					g := append(append([]lineGeom(nil), base...), nl)
+					starts = append(starts, start{g, append([]dipGeom(nil), dips...)})
+				}
+			}
 		}
 	}
 	return starts
@@ -1318,6 +1554,15 @@ const pairGain = 10.0
 // survey's half-width (plus a metre), in the guard.
 const maxDepthPerExtent = 3.0
 
+// currentK is the number of sigmas a line's current must exceed for the guard to keep
+// it: 3 for DC, phasorK for AC.
+func (f *fitter) currentK() float64 {
+	if f.sv.nrhs == 2 {
+		return phasorK
+	}
+	return 3
+}
+
 func (f *fitter) guard(c *candidate, gain float64) (why string, weak int) {
 	sum, err := f.summarise(c)
 	if err != nil {
@@ -1363,12 +1608,16 @@ func (f *fitter) guard(c *candidate, gain float64) (why string, weak int) {
 		if !e.Identifiable.Current {
 			return fmt.Sprintf("line %d current is not resolved by the data", i+1), i
 		}
-		k := 3.0
-		if f.sv.nrhs == 2 {
-			k = phasorK
-		}
+		k := f.currentK()
 		if !(math.Abs(e.Current) > k*e.CurrentSigma) {
 			return fmt.Sprintf("line %d current %.3g A is within %.3g sigma (%.3g A) of zero", i+1, e.Current, k, e.CurrentSigma), i
+		}
+	}
+	for i := range c.sp.geom {
+		// After the currents: such a line is as unsupported as one whose
+		// current is not resolved (the caller may refit without it).
+		if !inPair[i] && f.aboveSensors(&c.sp.geom[i]) {
+			return fmt.Sprintf("line %d passes above the sensors near the readings' centre", i+1), i
 		}
 	}
 	for i := range c.sp.geom {
@@ -1417,6 +1666,19 @@ func (f *fitter) misplaced(c *candidate) string {
 		}
 	}
 	return ""
+}
+
+// aboveSensors reports whether line g, at its point nearest the readings' centroid
+// (where its depth is reported), lies above the top of the search (Settings.MinDepth
+// below the lowest sensor). The search bounds the height of a line where it is
+// anchored, but a steeply dipping line rises from there: on a one-cable traverse
+// fitted with two lines the second was a 0.001 A line through the readings
+// "-0.53 m" deep, absorbing noise next to a sensor. No buried conductor lies there.
+func (f *fitter) aboveSensors(g *lineGeom) bool {
+	ln := g.line()
+	u := ln.Dir
+	pt := add(ln.Point, scale(u, dot(sub(f.sv.centroid, ln.Point), u)))
+	return pt[2] > g.zHi+1e-9
 }
 
 // pkgError adds context to an error from this package without repeating its

@@ -90,17 +90,64 @@ func (f *fitter) summariseOrdered(c *candidate) (*summary, error) {
 		return nil, err
 	}
 	su, err := f.summariseAsIs(c)
-	if err != nil || len(su.pairs) == 0 || len(su.lines) < 3 {
-		return su, err
-	}
-	idx := pairRank(su, f.sv.zmean)
-	if idx == nil {
-		return su, nil
-	}
-	if err := c.permute(idx); err != nil {
+	if err != nil {
 		return nil, err
 	}
-	return f.summariseAsIs(c)
+	if len(su.pairs) > 0 && len(su.lines) >= 3 {
+		if idx := pairRank(su, f.sv.zmean); idx != nil {
+			if err := c.permute(idx); err != nil {
+				return nil, err
+			}
+			if su, err = f.summariseAsIs(c); err != nil {
+				return nil, err
+			}
+		}
+	}
+	if idx := f.foundFirst(su, len(c.sp.geom)); len(idx) > 0 {
+		if err := c.permute(idx); err != nil {
+			return nil, err
+		}
+		return f.summariseAsIs(c)
+	}
+	return su, nil
+}
+
+// foundFirst returns the order that lists the nl lines whose current the data resolve
+// (beyond the guard's currentK sigmas, or in a pair: see PairEstimate) before those
+// whose current they do not, each in its present order, or nil when the first line's
+// current is resolved or no line's is. The strongest line is the conductor the
+// report follows, and a line whose current is not resolved can carry any current:
+// two lines forced on one cable (Settings.Count) put one 33 m down with -54 ± 62 A,
+// listed before the cable's 19.992 ± 0.050 A, and the traverse was reported as
+// having no current.
+func (f *fitter) foundFirst(su *summary, nl int) []int {
+	if nl < 2 {
+		return nil
+	}
+	inPair := make([]bool, len(su.lines))
+	for _, pe := range su.pairs {
+		inPair[pe.Lines[0]], inPair[pe.Lines[1]] = true, true
+	}
+	k := f.currentK()
+	found := func(i int) bool {
+		e := &su.lines[i]
+		return e.Kind == "line" && (inPair[i] || e.Identifiable.Current && math.Abs(e.Current) > k*e.CurrentSigma)
+	}
+	if found(0) {
+		return nil
+	}
+	var yes, no []int
+	for i := range nl {
+		if found(i) {
+			yes = append(yes, i)
+		} else {
+			no = append(no, i)
+		}
+	}
+	if len(yes) == 0 {
+		return nil
+	}
+	return append(yes, no...)
 }
 
 // summaryMemoOff turns the memo off (for tests that compare fits with and without it).
@@ -361,6 +408,12 @@ func (f *fitter) summariseAsIs(c *candidate) (*summary, error) {
 			e.Notes = append(e.Notes, "held at the minimum depth below the sensors: the depth is not determined")
 			id.Depth = false
 		}
+		if g.s <= g.sLo+1e-9 || g.s >= g.sHi-1e-9 {
+			e.Notes = append(e.Notes, EdgeOfSearchNote)
+		}
+		if f.aboveSensors(&sp.geom[l]) {
+			e.Notes = append(e.Notes, AboveSensorsNote)
+		}
 		if !id.Depth {
 			e.DepthSigma = 0
 		}
@@ -461,6 +514,17 @@ func (f *fitter) summariseAsIs(c *candidate) (*summary, error) {
 	}
 	return su, nil
 }
+
+// AboveSensorsNote is the note (SourceEstimate.Notes) of a line that passes above the
+// sensors where its depth is reported (a steeply dipping line rising through the
+// readings): it marks no buried conductor, and stands for field the other lines leave
+// unexplained, often the noise of readings close to it.
+const AboveSensorsNote = "the line passes above the sensors near the readings' centre (it dips steeply): not a buried conductor; it stands for field the other lines leave unexplained"
+
+// EdgeOfSearchNote is the note (SourceEstimate.Notes) of a line that lies at the edge
+// of the region searched across the readings (twice their extent plus 5 m from their
+// centre): the readings would put it further out, and its position is not determined.
+const EdgeOfSearchNote = "at the edge of the region searched (twice the readings' extent plus 5 m from their centre): the position is not determined"
 
 // weakLine is the fraction of the strongest current below which a line gets a caution.
 const weakLine = 0.02

@@ -403,6 +403,45 @@ func NoCurrent(s *inverse.SourceEstimate, ac bool) bool {
 	return !s.Identifiable.Current || !(math.Abs(s.Current) > currentK(ac)*s.CurrentSigma)
 }
 
+// noLineCurrent reports whether no line among ss carries a current the
+// data resolve (NoCurrent); false when ss holds no line.
+func noLineCurrent(ss []inverse.SourceEstimate, ac bool) bool {
+	lines := 0
+	for i := range ss {
+		if ss[i].Kind == KindDipole {
+			continue
+		}
+		lines++
+		if !NoCurrent(&ss[i], ac) {
+			return false
+		}
+	}
+	return lines > 0
+}
+
+// anglesApproximate returns the fit's note that its line angles, fitted
+// from a single traverse, are so poorly determined that its sigmas are
+// approximate (inverse.AnglesApproximateNote), or "".
+func anglesApproximate(notes []string) string {
+	for _, n := range notes {
+		if strings.HasPrefix(n, inverse.AnglesApproximateNote) {
+			return n
+		}
+	}
+	return ""
+}
+
+// heldRejected returns the fit's note that its held line angles are
+// rejected by the readings (inverse.HeldAnglesRejectedNote), or "".
+func heldRejected(notes []string) string {
+	for _, n := range notes {
+		if strings.HasPrefix(n, inverse.HeldAnglesRejectedNote) {
+			return n
+		}
+	}
+	return ""
+}
+
 // followsPair reports whether the route follows a go-and-return pair: at
 // least half of the groups whose fit found a current (usable, see
 // circuitOf) find the strongest line in a pair by the strict test of
@@ -524,13 +563,27 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute boo
 	}
 	// An unresolved go-and-return pair has no current of its own lines,
 	// but its centre and current times spacing are found (Group.Pair).
-	weak := g.OK && NoCurrent(&res.Sources[0], ac) && pair == nil
-	if weak {
+	// Every line is asked: the first is the strongest whose current is
+	// found when any is (inverse lists those first), but a caller's
+	// Result may not be so ordered, and a line of any size whose current
+	// is not resolved (a phantom 33 m down at -54 ± 62 A beside a clean
+	// 20 A cable, fitted with --count 2) says nothing of the others.
+	weak := g.OK && noLineCurrent(res.Sources, ac) && pair == nil
+	// A single traverse whose line angles the readings do not determine,
+	// where holding them perpendicular and level misses the readings by
+	// more than chance allows (inverse.HeldAnglesRejectedNote): the current
+	// and position are biased beyond their sigmas.
+	held := heldRejected(res.Notes)
+	if weak || held != "" {
 		g.OK = false
 	}
 	switch {
 	case len(res.Sources) == 0:
 		g.Problem = "no conductor was fitted"
+	case held != "" && !weak:
+		g.Problem = "the fit failed: " + held
+	case g.OK && anglesApproximate(res.Notes) != "":
+		g.Problem = anglesApproximate(res.Notes)
 	case weak:
 		s := res.Sources[0]
 		g.Problem = fmt.Sprintf("no current found: the strongest line's current, %s A, is within %.3g sigma of zero (no conductor under this group, or too weak a signal), so its position and depth mean nothing",
@@ -586,7 +639,7 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute boo
 			if j == 0 || j == partner {
 				continue
 			}
-			if o.Kind != KindDipole && sound(&o) {
+			if o.Kind != KindDipole && sound(&o) && !NoCurrent(&o, ac) {
 				st.Further = append(st.Further, route.Line{Point: o.Point, Dir: o.Dir,
 					Current: o.Current, CurrentSigma: o.CurrentSigma, Depth: o.Depth, DepthSigma: o.DepthSigma, AzimuthSigma: o.AzimuthSigma})
 			}
