@@ -55,6 +55,10 @@ type assetWorker struct {
 	// taking the asset); silent says the asset's silent alarm is raised.
 	lastData time.Time
 	silent   bool
+	// stall is when the worker last found the stream holding data for the
+	// asset that its consumer had not delivered while an idle close was
+	// due (see storedAhead); zero when it is not waiting for such data.
+	stall, stallLooked time.Time
 }
 
 func (s *Service) newAssetWorker(a *AssetConfig) (*assetWorker, error) {
@@ -179,6 +183,9 @@ func (w *assetWorker) consume(ctx context.Context) (*RestartStatus, uint64, erro
 			if err != nil {
 				return
 			}
+			if deliveryGate != nil {
+				deliveryGate(m)
+			}
 			msgs <- m
 		}
 	}()
@@ -233,6 +240,11 @@ func (w *assetWorker) consume(ctx context.Context) (*RestartStatus, uint64, erro
 	}
 }
 
+// deliveryGate, when set (by tests), is called with each message the
+// consumer delivers before the worker reads it; blocking in it stalls the
+// consumer as losing the broker node that serves it does.
+var deliveryGate func(jetstream.Msg)
+
 // wallClock is the time of an asset's first start (a variable so that
 // tests can place it).
 var wallClock = time.Now
@@ -273,17 +285,41 @@ func (w *assetWorker) placeStart(ctx context.Context) error {
 // time as a DeliverByStartTimePolicy consumer would (the client library
 // does not expose start_time).
 func (s *Service) firstSeqAt(ctx context.Context, asset string, t time.Time) (uint64, error) {
-	req, err := json.Marshal(struct {
+	seq, err := s.dataSeqLookup(ctx, struct {
 		StartTime time.Time `json:"start_time"`
 		NextFor   string    `json:"next_by_subj"`
 		NoHeaders bool      `json:"no_hdr"`
 	}{t.UTC(), broker.DataFilter(asset), true})
 	if err != nil {
+		return 0, fmt.Errorf("message lookup by time: %w", err)
+	}
+	return seq, nil
+}
+
+// nextDataSeq returns the sequence of the asset's first UC_DATA message at
+// or after sequence from, or 0 when the stream holds none.
+func (s *Service) nextDataSeq(ctx context.Context, asset string, from uint64) (uint64, error) {
+	seq, err := s.dataSeqLookup(ctx, struct {
+		Seq       uint64 `json:"seq"`
+		NextFor   string `json:"next_by_subj"`
+		NoHeaders bool   `json:"no_hdr"`
+	}{from, broker.DataFilter(asset), true})
+	if err != nil {
+		return 0, fmt.Errorf("message lookup by sequence: %w", err)
+	}
+	return seq, nil
+}
+
+// dataSeqLookup sends req to UC_DATA's message-get API and returns the
+// sequence of the message found, or 0 when there is none.
+func (s *Service) dataSeqLookup(ctx context.Context, req any) (uint64, error) {
+	body, err := json.Marshal(req)
+	if err != nil {
 		return 0, err
 	}
-	m, err := s.nc.RequestWithContext(ctx, jetstream.DefaultAPIPrefix+"STREAM.MSG.GET."+broker.StreamData, req)
+	m, err := s.nc.RequestWithContext(ctx, jetstream.DefaultAPIPrefix+"STREAM.MSG.GET."+broker.StreamData, body)
 	if err != nil {
-		return 0, fmt.Errorf("message lookup by time: %w", err)
+		return 0, err
 	}
 	var resp struct {
 		Message *struct {
@@ -296,15 +332,15 @@ func (s *Service) firstSeqAt(ctx context.Context, asset string, t time.Time) (ui
 		} `json:"error"`
 	}
 	if err := json.Unmarshal(m.Data, &resp); err != nil {
-		return 0, fmt.Errorf("message lookup by time: %w", err)
+		return 0, err
 	}
 	switch {
 	case resp.Error != nil && resp.Error.ErrCode == 10037: // no message found
 		return 0, nil
 	case resp.Error != nil:
-		return 0, fmt.Errorf("message lookup by time: %s (code %d)", resp.Error.Description, resp.Error.ErrCode)
+		return 0, fmt.Errorf("%s (code %d)", resp.Error.Description, resp.Error.ErrCode)
 	case resp.Message == nil || resp.Message.Seq == 0:
-		return 0, fmt.Errorf("message lookup by time: empty answer")
+		return 0, fmt.Errorf("empty answer")
 	}
 	return resp.Message.Seq, nil
 }
@@ -531,8 +567,17 @@ func (w *assetWorker) deadLetter(reason, subj string, seq uint64, data []byte, c
 	return nil
 }
 
-// closeReady publishes the windows that can be closed now.
+// closeReady publishes the windows that can be closed now. An idle close
+// waits while the stream holds data for the asset that the consumer has
+// not delivered (see storedAhead): that data belongs in the open windows,
+// and closing them would refuse it as late.
 func (w *assetWorker) closeReady(now time.Time, idle time.Duration) error {
+	if idle > 0 && w.asm.idleDue(now, idle) && w.storedAhead(now) {
+		idle = 0
+	} else if !w.stall.IsZero() {
+		w.log.Info("idle close no longer put off", "after", now.Sub(w.stall).Round(time.Millisecond))
+		w.stall = time.Time{}
+	}
 	ws := w.asm.ready(now, idle)
 	if err := w.refuseRejected(now); err != nil {
 		return err
@@ -547,6 +592,39 @@ func (w *assetWorker) closeReady(now time.Time, idle time.Duration) error {
 		}
 	}
 	return w.saveCheckpoint()
+}
+
+// stallLookEvery is how often a worker waiting on a stalled consumer asks
+// the stream again.
+const stallLookEvery = time.Second
+
+// storedAhead reports whether UC_DATA holds a message for the asset after
+// the last one the worker was given, or cannot be asked: the ordered
+// consumer has stalled (the broker node serving it was lost and the
+// client is recreating it, resuming after the last message delivered), so
+// the silence that makes an idle close due is not the publishers'. While
+// waiting it asks the stream at most once per stallLookEvery.
+func (w *assetWorker) storedAhead(now time.Time) bool {
+	if !w.stall.IsZero() && now.Sub(w.stallLooked) < stallLookEvery {
+		return true
+	}
+	w.stallLooked = now
+	ctx, cancel := context.WithTimeout(context.Background(), 2*time.Second)
+	defer cancel()
+	seq, err := w.svc.nextDataSeq(ctx, w.asset.Name, w.asm.lastSeq+1)
+	if err == nil && seq == 0 {
+		return false
+	}
+	if w.stall.IsZero() {
+		w.stall = now
+		w.svc.met.stalls.WithLabelValues(w.asset.Name).Inc()
+		if err != nil {
+			w.log.Warn("idle close put off: data stream not readable", "last_seq", w.asm.lastSeq, "err", err)
+		} else {
+			w.log.Warn("idle close put off: the data stream holds messages the consumer has not delivered", "last_seq", w.asm.lastSeq, "next_stored", seq)
+		}
+	}
+	return true
 }
 
 // window processes one closed window: commissioning or solve, publish.
