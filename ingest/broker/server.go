@@ -40,6 +40,9 @@ type ServerConfig struct {
 	Token string
 	// MaxPayload is the largest message the broker accepts, bytes; 0 means 8 MiB.
 	MaxPayload int32
+	// MaxStore bounds the JetStream file store, bytes; 0 leaves the
+	// server's default (most of the free disk space).
+	MaxStore int64
 	// Logf, when non-nil, receives the server's notices and warnings, and
 	// its errors unless Errorf is set.
 	Logf func(format string, args ...any)
@@ -84,6 +87,7 @@ func StartServer(cfg ServerConfig) (*Server, error) {
 		NoSigs:             true,
 		Authorization:      cfg.Token,
 		JetStreamMaxMemory: 256 << 20,
+		JetStreamMaxStore:  cfg.MaxStore,
 	}
 	if opts.Port == 0 {
 		opts.Port = server.RANDOM_PORT

@@ -24,6 +24,7 @@ type metrics struct {
 	dataLag     *lagCollector            // asset
 	queryReads  *prometheus.CounterVec   // query
 	leases      prometheus.Gauge
+	storeFull   prometheus.Gauge
 	takeovers   prometheus.Counter
 }
 
@@ -56,10 +57,12 @@ func newMetrics() *metrics {
 	m.queryReads = prometheus.NewCounterVec(prometheus.CounterOpts{Name: "uc_query_messages_read_total",
 		Help: "Stored messages read to answer API queries (positioning probes and messages scanned), by query (history, alarms)."}, []string{"query"})
 	m.leases = prometheus.NewGauge(prometheus.GaugeOpts{Name: "uc_assets_held", Help: "Assets this worker holds."})
+	m.storeFull = prometheus.NewGauge(prometheus.GaugeOpts{Name: "uc_store_full",
+		Help: "1 while the broker refuses this worker's writes (heartbeat, leases, estimates) for want of storage, else 0."})
 	m.takeovers = prometheus.NewCounter(prometheus.CounterOpts{Name: "uc_asset_acquisitions_total",
 		Help: "Times this worker acquired an asset's lease."})
 	m.reg.MustRegister(m.messages, m.deadLetters, m.samples, m.windows, m.estimates, m.alarms,
-		m.stage, m.latency, m.pending, m.stalls, m.dataLag, m.queryReads, m.leases, m.takeovers,
+		m.stage, m.latency, m.pending, m.stalls, m.dataLag, m.queryReads, m.leases, m.storeFull, m.takeovers,
 		collectors.NewGoCollector(), collectors.NewProcessCollector(collectors.ProcessCollectorOpts{}))
 	return m
 }

@@ -708,6 +708,7 @@ func (w *assetWorker) saveCheckpoint() error {
 	ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
 	defer cancel()
 	if _, err := w.svc.stores.State.Put(ctx, checkpointKey(w.asset.Name), data); err != nil {
+		w.svc.noteStore(err)
 		return fmt.Errorf("live: asset %s: checkpoint: %w", w.asset.Name, err)
 	}
 	w.svc.met.stage.WithLabelValues("checkpoint").Observe(time.Since(t0).Seconds())
