@@ -34,6 +34,10 @@ type checkpoint struct {
 	// one, so that a successor does not apply it twice.
 	Revision int    `json:"revision,omitempty"`
 	Restart  string `json:"restart,omitempty"`
+	// SilentSince is the start of the silence the asset's silent alarm
+	// was last raised for (RFC 3339), so that a successor does not raise
+	// it again for the same silence.
+	SilentSince string `json:"silent_since,omitempty"`
 }
 
 func checkpointKey(asset string) string { return "checkpoint." + asset }
@@ -194,7 +198,7 @@ func (w *assetWorker) consume(ctx context.Context) (*RestartStatus, uint64, erro
 		for range msgs {
 		}
 	}
-	w.lastData, w.silent = time.Now(), false
+	w.lastData, w.silent = w.silenceAtStart(bg)
 	tick := time.NewTicker(w.tickEvery())
 	defer tick.Stop()
 	var polled time.Time
@@ -422,6 +426,32 @@ func (w *assetWorker) handle(m jetstream.Msg) error {
 	return w.closeReady(t0, 0)
 }
 
+// silenceAtStart returns, for a worker taking the asset, when its data
+// last arrived and whether the silent alarm is already raised for the
+// silence since: the broker's time of the asset's last stored batch, or
+// the silence a predecessor raised the alarm for when nothing was stored
+// after it began, or now when the stream holds nothing for the asset.
+func (w *assetWorker) silenceAtStart(ctx context.Context) (time.Time, bool) {
+	now := time.Now()
+	var last time.Time
+	ctx, cancel := context.WithTimeout(ctx, 5*time.Second)
+	defer cancel()
+	if ds, err := w.svc.stores.JS.Stream(ctx, broker.StreamData); err == nil {
+		if m, err := ds.GetLastMsgForSubject(ctx, broker.DataFilter(w.asset.Name)); err == nil {
+			last = m.Time
+		} else if !errors.Is(err, jetstream.ErrMsgNotFound) {
+			w.log.Warn("last data time not readable: silence counted from now", "err", err)
+		}
+	}
+	if since, err := time.Parse(time.RFC3339Nano, w.ck.SilentSince); err == nil && !last.After(since) {
+		return since, true
+	}
+	if last.IsZero() || last.After(now) {
+		return now, false
+	}
+	return last, false
+}
+
 // checkSilence raises the asset's silent alarm once no batch has been
 // filed for SilentAfter of wall time: the windows it would have had are
 // never opened, so no window raises the per-sensor silent alarms. The
@@ -448,7 +478,11 @@ func (w *assetWorker) checkSilence(now time.Time) error {
 	al := w.proc.alarm(win, AlarmSilent, "", quiet.Seconds(), after.Seconds(),
 		fmt.Sprintf("no data from any sensor of asset %s for %.0f s of wall time (since %s)", w.asset.Name, quiet.Seconds(), since))
 	w.log.Warn("asset silent", "since", since)
-	return w.publishAlarm(al, w.msgID(idx)+"/"+al.Kind+"/"+since)
+	if err := w.publishAlarm(al, w.msgID(idx)+"/"+al.Kind+"/"+since); err != nil {
+		return err
+	}
+	w.ck.SilentSince = w.lastData.UTC().Format(time.RFC3339Nano)
+	return w.saveCheckpoint()
 }
 
 // message is a JSON message on subject with the asset's revision, when it
