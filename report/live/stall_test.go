@@ -97,3 +97,73 @@ func TestIdleCloseWaitsForStalledConsumer(t *testing.T) {
 	r.stop(t)
 	checkExactlyOnce(t, h.estimates(), 4) // 150 samples from 3 sensors in each
 }
+
+// While the data stream cannot be read (a cluster with no stream leader:
+// the publishers cannot store either), an idle close waits, for up to
+// resume_idle; when the stream answers again holding nothing newer, the
+// publishers' idle time starts again from then.
+func TestIdleCloseWhileStreamUnreadable(t *testing.T) {
+	if testing.Short() {
+		t.Skip("starts a broker")
+	}
+	srv, err := broker.StartServer(broker.ServerConfig{StoreDir: t.TempDir(), MQTTPort: -1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Cleanup(srv.Shutdown)
+	nc, err := broker.Connect(srv.ClientURL(), "w1", broker.Auth{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Cleanup(nc.Close)
+	site := testSite(t, testSiteText)
+	svc, err := New(Config{Site: site, Conn: nc, Worker: "w1", NewEstimator: newMean})
+	if err != nil {
+		t.Fatal(err)
+	}
+	idle, resume := site.Service.Idle.Duration, site.Service.ResumeIdle.Duration
+	at := time.Unix(1796105800, 0)
+	worker := func() *assetWorker {
+		w, err := svc.newAssetWorker(site.Asset("fenwick-lane"))
+		if err != nil {
+			t.Fatal(err)
+		}
+		w.asm.add(0, 1, mkBatch(t0, 100, 10, 0), at) // an open window
+		return w
+	}
+	// No UC_DATA stream yet: every lookup fails.
+	w1 := worker()
+	if err := w1.closeReady(at.Add(idle), idle); err != nil {
+		t.Fatal(err)
+	}
+	if len(w1.asm.open) != 1 {
+		t.Fatal("the window closed on idle while the data stream could not be read")
+	}
+	if wait, _ := w1.storedAhead(at.Add(idle + resume/2)); !wait {
+		t.Error("stopped waiting for the data stream before resume_idle")
+	}
+	if wait, _ := w1.storedAhead(at.Add(idle + resume)); wait {
+		t.Error("still waiting for the data stream after resume_idle")
+	}
+
+	w2 := worker()
+	if err := w2.closeReady(at.Add(idle), idle); err != nil {
+		t.Fatal(err)
+	}
+	js, _ := jetstream.New(nc)
+	ctx, cancel := context.WithTimeout(context.Background(), 20*time.Second)
+	defer cancel()
+	if _, err := broker.Setup(ctx, js, broker.StreamSettings{}); err != nil {
+		t.Fatal(err)
+	}
+	back := at.Add(idle + 2*stallLookEvery) // the stream answers, holding nothing
+	if err := w2.closeReady(back, idle); err != nil {
+		t.Fatal(err)
+	}
+	if len(w2.asm.open) != 1 || !w2.asm.arrival.Equal(back) {
+		t.Errorf("stream readable again: %d windows open, idle counted from %v; want the window open, idle from %v", len(w2.asm.open), w2.asm.arrival, back)
+	}
+	if wait, restart := w2.storedAhead(back.Add(idle)); wait || restart {
+		t.Error("idle after the stream came back, with nothing newer stored: the close still waits")
+	}
+}

@@ -63,6 +63,9 @@ type assetWorker struct {
 	// asset that its consumer had not delivered while an idle close was
 	// due (see storedAhead); zero when it is not waiting for such data.
 	stall, stallLooked time.Time
+	// unreadable is when the data stream first failed to answer in a
+	// row (zero once it answers).
+	unreadable time.Time
 }
 
 func (s *Service) newAssetWorker(a *AssetConfig) (*assetWorker, error) {
@@ -606,8 +609,14 @@ func (w *assetWorker) deadLetter(reason, subj string, seq uint64, data []byte, c
 // not delivered (see storedAhead): that data belongs in the open windows,
 // and closing them would refuse it as late.
 func (w *assetWorker) closeReady(now time.Time, idle time.Duration) error {
-	if idle > 0 && w.asm.idleDue(now, idle) && w.storedAhead(now) {
-		idle = 0
+	if idle > 0 && w.asm.idleDue(now, idle) {
+		wait, restart := w.storedAhead(now)
+		if restart {
+			w.asm.arrival = now
+		}
+		if wait || restart {
+			idle = 0
+		}
 	} else if !w.stall.IsZero() {
 		w.log.Info("idle close no longer put off", "after", now.Sub(w.stall).Round(time.Millisecond))
 		w.stall = time.Time{}
@@ -632,22 +641,46 @@ func (w *assetWorker) closeReady(now time.Time, idle time.Duration) error {
 // the stream again.
 const stallLookEvery = time.Second
 
-// storedAhead reports whether UC_DATA holds a message for the asset after
-// the last one the worker was given, or cannot be asked: the ordered
-// consumer has stalled (the broker node serving it was lost and the
-// client is recreating it, resuming after the last message delivered), so
-// the silence that makes an idle close due is not the publishers'. While
-// waiting it asks the stream at most once per stallLookEvery.
-func (w *assetWorker) storedAhead(now time.Time) bool {
+// storedAhead is asked when an idle close is due. It reports wait when
+// UC_DATA holds a message for the asset after the last one the worker was
+// given: the ordered consumer has stalled (the broker node serving it was
+// lost and the client is recreating it, resuming after the last message
+// delivered), so the silence is not the publishers'. It reports wait too
+// while the stream cannot be read (no leader: the publishers cannot store
+// either), for up to resume_idle, after which idle closes go ahead. When
+// the stream answers again holding nothing newer after such a wait, it
+// reports restart: the publishers may have been cut off as well, and
+// their idle time runs again from now. While waiting it asks the stream
+// at most once per stallLookEvery.
+func (w *assetWorker) storedAhead(now time.Time) (wait, restart bool) {
 	if !w.stall.IsZero() && now.Sub(w.stallLooked) < stallLookEvery {
-		return true
+		return true, false
 	}
 	w.stallLooked = now
 	ctx, cancel := context.WithTimeout(context.Background(), 2*time.Second)
 	defer cancel()
 	seq, err := w.svc.nextDataSeq(ctx, w.asset.Name, w.asm.lastSeq+1)
-	if err == nil && seq == 0 {
-		return false
+	if err != nil {
+		if w.unreadable.IsZero() {
+			w.unreadable = now
+		}
+		if limit := max(w.svc.site.Service.ResumeIdle.Duration, w.svc.site.Service.Idle.Duration); now.Sub(w.unreadable) >= limit {
+			if !w.stall.IsZero() {
+				w.log.Warn("data stream still not readable: windows close on idle", "for", now.Sub(w.unreadable).Round(time.Second), "err", err)
+				w.stall = time.Time{}
+			}
+			return false, false
+		}
+	} else {
+		w.unreadable = time.Time{}
+		if seq == 0 {
+			stalled := !w.stall.IsZero()
+			if stalled {
+				w.log.Info("idle close no longer put off; idle time starts again", "after", now.Sub(w.stall).Round(time.Millisecond))
+				w.stall = time.Time{}
+			}
+			return false, stalled
+		}
 	}
 	if w.stall.IsZero() {
 		w.stall = now
@@ -658,7 +691,7 @@ func (w *assetWorker) storedAhead(now time.Time) bool {
 			w.log.Warn("idle close put off: the data stream holds messages the consumer has not delivered", "last_seq", w.asm.lastSeq, "next_stored", seq)
 		}
 	}
-	return true
+	return true, false
 }
 
 // window processes one closed window: commissioning or solve, publish.
