@@ -90,6 +90,9 @@
 // asset after the last one the worker was given: losing the cluster node
 // that serves the worker's ordered consumer stalls delivery while the
 // stream goes on storing, and that data belongs in the open windows.
+// Nor is it closed while the stream cannot be read (no leader: the
+// publishers cannot store either), for up to resume_idle; when the stream
+// answers again holding nothing newer, the idle time starts again.
 //
 // # Where a new asset starts reading
 //
