@@ -118,6 +118,7 @@ func runServe(ctx context.Context, o *serveOptions, args []string, stderr io.Wri
 			return err
 		}
 		cfg.Logf = func(format string, a ...any) { log.Debug(fmt.Sprintf(format, a...)) }
+		cfg.Errorf = func(format string, a ...any) { log.Error(fmt.Sprintf(format, a...)) }
 		srv, err := broker.StartServer(cfg)
 		if err != nil {
 			return err

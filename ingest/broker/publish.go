@@ -2,8 +2,10 @@ package broker
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"strconv"
+	"time"
 
 	"github.com/nats-io/nats.go"
 	"github.com/nats-io/nats.go/jetstream"
@@ -42,11 +44,42 @@ func PublishBatch(ctx context.Context, js jetstream.JetStream, b *Batch, enc str
 	msg.Data = data
 	msg.Header.Set(HeaderContentType, enc)
 	id := b.Asset + "/" + b.Sensor + "/" + strconv.FormatFloat(b.Time[0], 'g', -1, 64)
-	ack, err := js.PublishMsg(ctx, msg, jetstream.WithMsgID(id))
-	if err != nil {
-		return nil, fmt.Errorf("broker: publish %s: %w", msg.Subject, err)
+	// A cluster electing a new stream leader (a node lost) answers nothing
+	// for a few seconds: the publish is tried again, with the same message
+	// id so that a batch stored by an attempt that timed out is stored
+	// once, for up to publishRetryFor.
+	deadline := time.Now().Add(publishRetryFor)
+	for wait := 100 * time.Millisecond; ; wait = min(2*wait, 2*time.Second) {
+		actx, cancel := context.WithTimeout(ctx, publishAttempt)
+		ack, err := js.PublishMsg(actx, msg, jetstream.WithMsgID(id))
+		cancel()
+		if err == nil {
+			return ack, nil
+		}
+		if ctx.Err() != nil || !publishRetryable(err) || time.Now().Add(wait).After(deadline) {
+			return nil, fmt.Errorf("broker: publish %s: %w", msg.Subject, err)
+		}
+		select {
+		case <-ctx.Done():
+			return nil, fmt.Errorf("broker: publish %s: %w", msg.Subject, ctx.Err())
+		case <-time.After(wait):
+		}
 	}
-	return ack, nil
+}
+
+// publishAttempt bounds one publish attempt; publishRetryFor the time
+// PublishBatch goes on trying, well within the data stream's two-minute
+// deduplication window.
+const (
+	publishAttempt  = 5 * time.Second
+	publishRetryFor = 30 * time.Second
+)
+
+// publishRetryable reports whether a failed publish may succeed when tried
+// again: no answer (timeout, no stream responding), not a refusal.
+func publishRetryable(err error) bool {
+	return errors.Is(err, context.DeadlineExceeded) || errors.Is(err, nats.ErrTimeout) ||
+		errors.Is(err, jetstream.ErrNoStreamResponse) || errors.Is(err, nats.ErrNoResponders)
 }
 
 // DeadLetter stores a refused message on uc.dlq.<reason> with its reason,

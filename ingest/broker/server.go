@@ -3,6 +3,7 @@ package broker
 import (
 	"fmt"
 	"net"
+	"os"
 	"strconv"
 	"time"
 
@@ -39,14 +40,22 @@ type ServerConfig struct {
 	Token string
 	// MaxPayload is the largest message the broker accepts, bytes; 0 means 8 MiB.
 	MaxPayload int32
-	// Logf, when non-nil, receives the server's notices and errors.
+	// MaxStore bounds the JetStream file store, bytes; 0 leaves the
+	// server's default (most of the free disk space).
+	MaxStore int64
+	// Logf, when non-nil, receives the server's notices and warnings, and
+	// its errors unless Errorf is set.
 	Logf func(format string, args ...any)
+	// Errorf, when non-nil, receives the server's errors and fatal errors
+	// (a listener that cannot be opened, a store that cannot be used).
+	Errorf func(format string, args ...any)
 }
 
 // Server is a running embedded NATS server with JetStream.
 type Server struct {
-	ns  *server.Server
-	cfg ServerConfig
+	ns   *server.Server
+	cfg  ServerConfig
+	lock *os.File // the store's lock file (see lockStore)
 }
 
 // StartServer starts an embedded NATS server with JetStream on a file store
@@ -76,9 +85,9 @@ func StartServer(cfg ServerConfig) (*Server, error) {
 		StoreDir:           cfg.StoreDir,
 		MaxPayload:         cfg.MaxPayload,
 		NoSigs:             true,
-		NoLog:              cfg.Logf == nil,
 		Authorization:      cfg.Token,
 		JetStreamMaxMemory: 256 << 20,
+		JetStreamMaxStore:  cfg.MaxStore,
 	}
 	if opts.Port == 0 {
 		opts.Port = server.RANDOM_PORT
@@ -106,19 +115,49 @@ func StartServer(cfg ServerConfig) (*Server, error) {
 			opts.MQTT.Port = server.RANDOM_PORT
 		}
 	}
-	ns, err := server.NewServer(opts)
+	lock, err := lockStore(cfg.StoreDir)
 	if err != nil {
 		return nil, fmt.Errorf("broker: start server: %w", err)
 	}
-	if cfg.Logf != nil {
-		ns.SetLoggerV2(logAdapter(cfg.Logf), false, false, false)
+	ns, err := server.NewServer(opts)
+	if err != nil {
+		unlock(lock)
+		return nil, fmt.Errorf("broker: start server: %w", err)
 	}
+	// The server reports a listener it cannot open (a port in use) or a
+	// store it cannot use as a fatal error and never becomes ready: the
+	// first one is the reason StartServer gives, at once.
+	fatal := make(chan string, 1)
+	ns.SetLoggerV2(&logAdapter{logf: cfg.Logf, errorf: cfg.Errorf, fatal: fatal}, false, false, false)
 	ns.Start()
-	if !ns.ReadyForConnections(10 * time.Second) {
+	fail := func(why string) (*Server, error) {
 		ns.Shutdown()
-		return nil, fmt.Errorf("broker: start server: not ready after 10 s (port %d busy?)", cfg.Port)
+		ns.WaitForShutdown()
+		unlock(lock)
+		return nil, fmt.Errorf("broker: start server: %s", why)
 	}
-	return &Server{ns: ns, cfg: cfg}, nil
+	for deadline := time.Now().Add(10 * time.Second); !ns.ReadyForConnections(50 * time.Millisecond); {
+		select {
+		case why := <-fatal:
+			return fail(why)
+		default:
+		}
+		if time.Now().After(deadline) {
+			ports := fmt.Sprintf("NATS port %d", cfg.Port)
+			if cfg.MQTTPort >= 0 {
+				ports += fmt.Sprintf(", MQTT port %d", cfg.MQTTPort)
+			}
+			return fail("not ready after 10 s (" + ports + ")")
+		}
+	}
+	return &Server{ns: ns, cfg: cfg, lock: lock}, nil
+}
+
+// unlock releases a store lock taken by lockStore.
+func unlock(f *os.File) {
+	if f != nil {
+		f.Close()
+	}
 }
 
 // ClientURL returns the nats:// URL clients connect to.
@@ -141,13 +180,41 @@ func (s *Server) MQTTAddr() string {
 func (s *Server) Shutdown() {
 	s.ns.Shutdown()
 	s.ns.WaitForShutdown()
+	unlock(s.lock)
+	s.lock = nil
 }
 
-type logAdapter func(format string, args ...any)
+// logAdapter passes the embedded server's log to ServerConfig.Logf and
+// Errorf, and its first fatal error to fatal.
+type logAdapter struct {
+	logf, errorf func(format string, args ...any)
+	fatal        chan string
+}
 
-func (l logAdapter) Noticef(format string, v ...any) { l("nats: "+format, v...) }
-func (l logAdapter) Warnf(format string, v ...any)   { l("nats warning: "+format, v...) }
-func (l logAdapter) Fatalf(format string, v ...any)  { l("nats fatal: "+format, v...) }
-func (l logAdapter) Errorf(format string, v ...any)  { l("nats error: "+format, v...) }
-func (l logAdapter) Debugf(format string, v ...any)  {}
-func (l logAdapter) Tracef(format string, v ...any)  {}
+func (l *logAdapter) log(format string, v ...any) {
+	if l.logf != nil {
+		l.logf(format, v...)
+	}
+}
+
+func (l *logAdapter) error(format string, v ...any) {
+	if l.errorf != nil {
+		l.errorf(format, v...)
+	} else {
+		l.log(format, v...)
+	}
+}
+
+func (l *logAdapter) Noticef(format string, v ...any) { l.log("nats: "+format, v...) }
+func (l *logAdapter) Warnf(format string, v ...any)   { l.log("nats warning: "+format, v...) }
+func (l *logAdapter) Errorf(format string, v ...any)  { l.error("nats error: "+format, v...) }
+func (l *logAdapter) Debugf(format string, v ...any)  {}
+func (l *logAdapter) Tracef(format string, v ...any)  {}
+
+func (l *logAdapter) Fatalf(format string, v ...any) {
+	l.error("nats fatal: "+format, v...)
+	select {
+	case l.fatal <- fmt.Sprintf(format, v...):
+	default:
+	}
+}

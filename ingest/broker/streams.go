@@ -17,6 +17,11 @@ type StreamSettings struct {
 	Replicas int
 	// DataMaxAge bounds how long raw sensor batches are kept; 0 means 24 h.
 	DataMaxAge time.Duration
+	// DataMaxBytes bounds the raw sensor batches kept, bytes: past it the
+	// oldest are discarded for new ones, so that a store too small for
+	// DataMaxAge of data shortens the raw history instead of refusing new
+	// data. 0 means no bound but the age.
+	DataMaxBytes int64
 	// Duplicates is the deduplication window of estimates and alarms; 0
 	// means 1 h.
 	Duplicates time.Duration
@@ -47,7 +52,7 @@ func Setup(ctx context.Context, js jetstream.JetStream, set StreamSettings) (*St
 		storage = jetstream.MemoryStorage
 	}
 	streams := []jetstream.StreamConfig{
-		{Name: StreamData, Subjects: []string{DataPrefix + ".>"}, MaxAge: set.DataMaxAge, Duplicates: 2 * time.Minute},
+		{Name: StreamData, Subjects: []string{DataPrefix + ".>"}, MaxAge: set.DataMaxAge, MaxBytes: set.DataMaxBytes, Discard: jetstream.DiscardOld, Duplicates: 2 * time.Minute},
 		{Name: StreamEstimates, Subjects: []string{EstimatePrefix + ".>"}, Duplicates: set.Duplicates},
 		{Name: StreamAlarms, Subjects: []string{AlarmPrefix + ".>"}, Duplicates: set.Duplicates},
 		{Name: StreamDeadLetter, Subjects: []string{DeadLetterPrefix + ".>"}, Duplicates: set.Duplicates, MaxAge: 7 * 24 * time.Hour},

@@ -86,6 +86,14 @@
 // broker's deduplication stores a window published twice (holder died
 // between publishing and checkpointing) only once.
 //
+// A window is closed on idle only when UC_DATA holds no message for the
+// asset after the last one the worker was given: losing the cluster node
+// that serves the worker's ordered consumer stalls delivery while the
+// stream goes on storing, and that data belongs in the open windows.
+// Nor is it closed while the stream cannot be read (no leader: the
+// publishers cannot store either), for up to resume_idle; when the stream
+// answers again holding nothing newer, the idle time starts again.
+//
 // # Where a new asset starts reading
 //
 // An asset without a checkpoint (its first start, or an asset newly added
@@ -174,7 +182,8 @@
 // cancel; a difference is current leaking to earth), step (change between
 // consecutive windows above step), silent (no samples from a sensor in a
 // window; with no subject, no data from any sensor for silent_after of
-// wall time), stuck (one value
+// wall time, once per silence: dated from the broker's time of the last
+// stored batch, and kept in the checkpoint for a successor), stuck (one value
 // repeated on an axis for a whole window), degraded (reduced chi-square
 // above max_chi2, or the solve failed). Each is published on
 // uc.alarm.<asset>.<kind> with message id "<asset>/<window>/<kind>/<subject>".

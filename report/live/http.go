@@ -23,7 +23,7 @@ import (
 // Handler returns the HTTP API:
 //
 //	GET  /healthz                          200 while the process runs
-//	GET  /readyz                           200 when connected to the broker with streams set up
+//	GET  /readyz                           200 when connected to the broker with streams set up and its store taking writes
 //	GET  /metrics                          Prometheus metrics (private registry)
 //	GET  /api/v1/assets                    assets, their settings and which worker holds each
 //	GET  /api/v1/assets/{asset}            the asset as listed, with its last restart request
@@ -124,6 +124,10 @@ func (s *Service) readyz(w http.ResponseWriter, r *http.Request) {
 	}
 	if s.nc.Status() != nats.CONNECTED {
 		http.Error(w, "broker "+s.nc.Status().String(), http.StatusServiceUnavailable)
+		return
+	}
+	if full := s.storeFull.Load(); full != nil {
+		http.Error(w, "broker store full: "+*full, http.StatusServiceUnavailable)
 		return
 	}
 	fmt.Fprintln(w, "ready")

@@ -20,9 +20,11 @@ type metrics struct {
 	stage       *prometheus.HistogramVec // stage
 	latency     *prometheus.HistogramVec // asset
 	pending     *prometheus.GaugeVec     // asset
+	stalls      *prometheus.CounterVec   // asset
 	dataLag     *lagCollector            // asset
 	queryReads  *prometheus.CounterVec   // query
 	leases      prometheus.Gauge
+	storeFull   prometheus.Gauge
 	takeovers   prometheus.Counter
 }
 
@@ -48,15 +50,19 @@ func newMetrics() *metrics {
 		Buckets: prometheus.ExponentialBuckets(1e-4, 2, 16)}, []string{"asset"})
 	m.pending = prometheus.NewGaugeVec(prometheus.GaugeOpts{Name: "uc_pending_messages",
 		Help: "Sensor messages stored but not yet read, by asset (consumer lag)."}, []string{"asset"})
+	m.stalls = prometheus.NewCounterVec(prometheus.CounterOpts{Name: "uc_consumer_stalls_total",
+		Help: "Times an idle close was put off because the data stream held messages for the asset that the worker's consumer had not delivered (or could not be read), by asset."}, []string{"asset"})
 	m.dataLag = &lagCollector{now: time.Now, end: map[string]float64{}, desc: prometheus.NewDesc("uc_data_lag_seconds",
 		"Wall-clock time minus the end of the last published window, by asset (live data with Unix times), at the time of the scrape.", []string{"asset"}, nil)}
 	m.queryReads = prometheus.NewCounterVec(prometheus.CounterOpts{Name: "uc_query_messages_read_total",
 		Help: "Stored messages read to answer API queries (positioning probes and messages scanned), by query (history, alarms)."}, []string{"query"})
 	m.leases = prometheus.NewGauge(prometheus.GaugeOpts{Name: "uc_assets_held", Help: "Assets this worker holds."})
+	m.storeFull = prometheus.NewGauge(prometheus.GaugeOpts{Name: "uc_store_full",
+		Help: "1 while the broker refuses this worker's writes (heartbeat, leases, estimates) for want of storage, else 0."})
 	m.takeovers = prometheus.NewCounter(prometheus.CounterOpts{Name: "uc_asset_acquisitions_total",
 		Help: "Times this worker acquired an asset's lease."})
 	m.reg.MustRegister(m.messages, m.deadLetters, m.samples, m.windows, m.estimates, m.alarms,
-		m.stage, m.latency, m.pending, m.dataLag, m.queryReads, m.leases, m.takeovers,
+		m.stage, m.latency, m.pending, m.stalls, m.dataLag, m.queryReads, m.leases, m.storeFull, m.takeovers,
 		collectors.NewGoCollector(), collectors.NewProcessCollector(collectors.ProcessCollectorOpts{}))
 	return m
 }

@@ -12,6 +12,7 @@ import (
 	"net/http"
 	"os"
 	"sort"
+	"strings"
 	"sync"
 	"sync/atomic"
 	"time"
@@ -79,6 +80,10 @@ type Service struct {
 	// noConsumerReset (tests) makes queries behave as against a broker
 	// without the consumer reset.
 	noConsumerReset atomic.Bool
+
+	// storeFull holds the error of the last write the broker refused for
+	// want of storage, until a write succeeds again (see noteStore).
+	storeFull atomic.Pointer[string]
 }
 
 type holding struct {
@@ -172,7 +177,7 @@ func (s *Service) Run(ctx context.Context) error {
 	}
 	sctx, cancel := context.WithTimeout(ctx, 30*time.Second)
 	s.stores, err = broker.Setup(sctx, js, broker.StreamSettings{
-		Replicas: s.site.Broker.Replicas, DataMaxAge: s.site.Broker.DataRetention.Duration,
+		Replicas: s.site.Broker.Replicas, DataMaxAge: s.site.Broker.DataRetention.Duration, DataMaxBytes: s.site.Broker.DataMaxBytes,
 		LeaseTTL: s.site.Service.LeaseTTL.Duration, Memory: s.memory})
 	cancel()
 	if err != nil {
@@ -242,9 +247,11 @@ func (s *Service) leaseRound(ctx context.Context, order []string) {
 	st := s.stores
 	rctx, cancel := context.WithTimeout(context.Background(), s.site.Service.LeaseTTL.Duration/2) // not ctx: a stop must not look like a lost lease
 	defer cancel()
-	if _, err := st.Workers.Put(rctx, s.id, []byte(time.Now().UTC().Format(time.RFC3339Nano))); err != nil {
+	_, err := st.Workers.Put(rctx, s.id, []byte(time.Now().UTC().Format(time.RFC3339Nano)))
+	if err != nil {
 		s.log.Warn("heartbeat failed", "err", err)
 	}
+	s.noteStore(err)
 	workers := 1
 	if keys, err := st.Workers.Keys(rctx); err == nil && len(keys) > 0 {
 		workers = len(keys)
@@ -273,6 +280,7 @@ func (s *Service) leaseRound(ctx context.Context, order []string) {
 			}
 		}
 		if err != nil {
+			s.noteStore(err)
 			s.log.Warn("lease lost", "asset", name, "err", err)
 			h.cancel()
 			<-h.done
@@ -310,6 +318,7 @@ func (s *Service) leaseRound(ctx context.Context, order []string) {
 		}
 		rev, err := st.Lease.Create(rctx, name, []byte(s.id))
 		if err != nil {
+			s.noteStore(err)
 			// Held by another worker, or by this one from before a
 			// broker restart or a lost renewal: adopt our own.
 			e, gerr := st.Lease.Get(rctx, name)
@@ -381,6 +390,7 @@ func (s *Service) publish(msg *nats.Msg, id string) (*jetstream.PubAck, error) {
 		ctx, cancel := context.WithTimeout(context.Background(), 2*time.Second)
 		ack, err := s.stores.JS.PublishMsg(ctx, msg, jetstream.WithMsgID(id))
 		cancel()
+		s.noteStore(err)
 		if err == nil {
 			return ack, nil
 		}
@@ -388,4 +398,38 @@ func (s *Service) publish(msg *nats.Msg, id string) (*jetstream.PubAck, error) {
 		time.Sleep(time.Duration(attempt+1) * 50 * time.Millisecond)
 	}
 	return nil, fmt.Errorf("live: publish %s: %w", msg.Subject, last)
+}
+
+// errCodeInsufficientResources is the JetStream API error code of a write
+// refused because the server's (or the account's) storage is used up.
+const errCodeInsufficientResources = 10023
+
+// storeRefused reports whether err is a write refused for want of storage.
+func storeRefused(err error) bool {
+	var je jetstream.JetStreamError
+	if errors.As(err, &je) && je.APIError() != nil {
+		return je.APIError().ErrorCode == errCodeInsufficientResources
+	}
+	return err != nil && strings.Contains(err.Error(), "insufficient resources")
+}
+
+// noteStore follows the outcome of a write to the broker: a write refused
+// for want of storage marks the store full (logged at ERROR, /readyz
+// failing, uc_store_full 1: leases cannot be renewed nor estimates stored,
+// and the publishers' data is refused) until a write succeeds again.
+// Other errors leave the mark as it is.
+func (s *Service) noteStore(err error) {
+	switch {
+	case err == nil:
+		if s.storeFull.Swap(nil) != nil {
+			s.met.storeFull.Set(0)
+			s.log.Info("the broker stores writes again")
+		}
+	case storeRefused(err):
+		msg := err.Error()
+		if s.storeFull.Swap(&msg) == nil {
+			s.met.storeFull.Set(1)
+			s.log.Error("the broker's store is full: no lease, estimate or sensor batch can be stored until space is freed (raise the store's size, or lower broker.data_retention or set broker.data_max_bytes)", "err", err)
+		}
+	}
 }

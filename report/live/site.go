@@ -83,6 +83,9 @@ type BrokerConfig struct {
 	Replicas int `toml:"replicas"`
 	// DataRetention bounds how long raw sensor batches are kept; 0 means 24 h.
 	DataRetention Duration `toml:"data_retention"`
+	// DataMaxBytes bounds the raw sensor batches kept, bytes: past it the
+	// oldest give way to new ones. 0 means no bound but data_retention.
+	DataMaxBytes int64 `toml:"data_max_bytes"`
 	// User and Password (or Token) are the credentials the service itself
 	// uses. Users lists the accounts of the embedded server; when it is
 	// non-empty, unauthenticated clients are refused.
@@ -303,6 +306,9 @@ func (s *Site) validate() error {
 	}
 	if s.Broker.Replicas == 0 {
 		s.Broker.Replicas = 1
+	}
+	if s.Broker.DataMaxBytes < 0 {
+		return fmt.Errorf("broker.data_max_bytes %d: want 0 (no bound) or more", s.Broker.DataMaxBytes)
 	}
 	if s.Broker.Replicas < 1 || s.Broker.Replicas > 5 {
 		return fmt.Errorf("broker.replicas %d: want 1 to 5", s.Broker.Replicas)

@@ -284,10 +284,7 @@ func (a *assembler) ready(now time.Time, idle time.Duration) []*window {
 	var out []*window
 	a.release(now)
 	qWater := a.quorum(now)
-	if idle > 0 && !a.fresh && a.resumeIdle > idle {
-		idle = a.resumeIdle
-	}
-	idleNow := idle > 0 && !a.arrival.IsZero() && now.Sub(a.arrival) >= idle
+	idleNow := a.idleDue(now, idle)
 	for len(a.open) > 0 {
 		w := a.open[0]
 		end := float64(w.idx+1) * a.L
@@ -308,6 +305,16 @@ func (a *assembler) ready(now time.Time, idle time.Duration) []*window {
 		out = append(out, &window{Index: w.idx, Start: float64(w.idx) * a.L, End: end, Sensors: w.sensors, Closed: now, Reason: reason, minSeq: w.minSeq, Expected: a.expected()})
 	}
 	return out
+}
+
+// idleDue reports whether ready(now, idle) would close the open windows
+// for want of data: idle > 0 (at least resumeIdle until a message stored
+// after backlog arrives) has passed since the last message arrived.
+func (a *assembler) idleDue(now time.Time, idle time.Duration) bool {
+	if idle > 0 && !a.fresh && a.resumeIdle > idle {
+		idle = a.resumeIdle
+	}
+	return idle > 0 && len(a.open) > 0 && !a.arrival.IsZero() && now.Sub(a.arrival) >= idle
 }
 
 // heard reports whether sensor s has sent a batch within stale of now.

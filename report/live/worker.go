@@ -34,6 +34,10 @@ type checkpoint struct {
 	// one, so that a successor does not apply it twice.
 	Revision int    `json:"revision,omitempty"`
 	Restart  string `json:"restart,omitempty"`
+	// SilentSince is the start of the silence the asset's silent alarm
+	// was last raised for (RFC 3339), so that a successor does not raise
+	// it again for the same silence.
+	SilentSince string `json:"silent_since,omitempty"`
 }
 
 func checkpointKey(asset string) string { return "checkpoint." + asset }
@@ -55,6 +59,13 @@ type assetWorker struct {
 	// taking the asset); silent says the asset's silent alarm is raised.
 	lastData time.Time
 	silent   bool
+	// stall is when the worker last found the stream holding data for the
+	// asset that its consumer had not delivered while an idle close was
+	// due (see storedAhead); zero when it is not waiting for such data.
+	stall, stallLooked time.Time
+	// unreadable is when the data stream first failed to answer in a
+	// row (zero once it answers).
+	unreadable time.Time
 }
 
 func (s *Service) newAssetWorker(a *AssetConfig) (*assetWorker, error) {
@@ -179,6 +190,9 @@ func (w *assetWorker) consume(ctx context.Context) (*RestartStatus, uint64, erro
 			if err != nil {
 				return
 			}
+			if deliveryGate != nil {
+				deliveryGate(m)
+			}
 			msgs <- m
 		}
 	}()
@@ -187,7 +201,7 @@ func (w *assetWorker) consume(ctx context.Context) (*RestartStatus, uint64, erro
 		for range msgs {
 		}
 	}
-	w.lastData, w.silent = time.Now(), false
+	w.lastData, w.silent = w.silenceAtStart(bg)
 	tick := time.NewTicker(w.tickEvery())
 	defer tick.Stop()
 	var polled time.Time
@@ -233,6 +247,11 @@ func (w *assetWorker) consume(ctx context.Context) (*RestartStatus, uint64, erro
 	}
 }
 
+// deliveryGate, when set (by tests), is called with each message the
+// consumer delivers before the worker reads it; blocking in it stalls the
+// consumer as losing the broker node that serves it does.
+var deliveryGate func(jetstream.Msg)
+
 // wallClock is the time of an asset's first start (a variable so that
 // tests can place it).
 var wallClock = time.Now
@@ -273,17 +292,41 @@ func (w *assetWorker) placeStart(ctx context.Context) error {
 // time as a DeliverByStartTimePolicy consumer would (the client library
 // does not expose start_time).
 func (s *Service) firstSeqAt(ctx context.Context, asset string, t time.Time) (uint64, error) {
-	req, err := json.Marshal(struct {
+	seq, err := s.dataSeqLookup(ctx, struct {
 		StartTime time.Time `json:"start_time"`
 		NextFor   string    `json:"next_by_subj"`
 		NoHeaders bool      `json:"no_hdr"`
 	}{t.UTC(), broker.DataFilter(asset), true})
 	if err != nil {
+		return 0, fmt.Errorf("message lookup by time: %w", err)
+	}
+	return seq, nil
+}
+
+// nextDataSeq returns the sequence of the asset's first UC_DATA message at
+// or after sequence from, or 0 when the stream holds none.
+func (s *Service) nextDataSeq(ctx context.Context, asset string, from uint64) (uint64, error) {
+	seq, err := s.dataSeqLookup(ctx, struct {
+		Seq       uint64 `json:"seq"`
+		NextFor   string `json:"next_by_subj"`
+		NoHeaders bool   `json:"no_hdr"`
+	}{from, broker.DataFilter(asset), true})
+	if err != nil {
+		return 0, fmt.Errorf("message lookup by sequence: %w", err)
+	}
+	return seq, nil
+}
+
+// dataSeqLookup sends req to UC_DATA's message-get API and returns the
+// sequence of the message found, or 0 when there is none.
+func (s *Service) dataSeqLookup(ctx context.Context, req any) (uint64, error) {
+	body, err := json.Marshal(req)
+	if err != nil {
 		return 0, err
 	}
-	m, err := s.nc.RequestWithContext(ctx, jetstream.DefaultAPIPrefix+"STREAM.MSG.GET."+broker.StreamData, req)
+	m, err := s.nc.RequestWithContext(ctx, jetstream.DefaultAPIPrefix+"STREAM.MSG.GET."+broker.StreamData, body)
 	if err != nil {
-		return 0, fmt.Errorf("message lookup by time: %w", err)
+		return 0, err
 	}
 	var resp struct {
 		Message *struct {
@@ -296,15 +339,15 @@ func (s *Service) firstSeqAt(ctx context.Context, asset string, t time.Time) (ui
 		} `json:"error"`
 	}
 	if err := json.Unmarshal(m.Data, &resp); err != nil {
-		return 0, fmt.Errorf("message lookup by time: %w", err)
+		return 0, err
 	}
 	switch {
 	case resp.Error != nil && resp.Error.ErrCode == 10037: // no message found
 		return 0, nil
 	case resp.Error != nil:
-		return 0, fmt.Errorf("message lookup by time: %s (code %d)", resp.Error.Description, resp.Error.ErrCode)
+		return 0, fmt.Errorf("%s (code %d)", resp.Error.Description, resp.Error.ErrCode)
 	case resp.Message == nil || resp.Message.Seq == 0:
-		return 0, fmt.Errorf("message lookup by time: empty answer")
+		return 0, fmt.Errorf("empty answer")
 	}
 	return resp.Message.Seq, nil
 }
@@ -386,6 +429,32 @@ func (w *assetWorker) handle(m jetstream.Msg) error {
 	return w.closeReady(t0, 0)
 }
 
+// silenceAtStart returns, for a worker taking the asset, when its data
+// last arrived and whether the silent alarm is already raised for the
+// silence since: the broker's time of the asset's last stored batch, or
+// the silence a predecessor raised the alarm for when nothing was stored
+// after it began, or now when the stream holds nothing for the asset.
+func (w *assetWorker) silenceAtStart(ctx context.Context) (time.Time, bool) {
+	now := time.Now()
+	var last time.Time
+	ctx, cancel := context.WithTimeout(ctx, 5*time.Second)
+	defer cancel()
+	if ds, err := w.svc.stores.JS.Stream(ctx, broker.StreamData); err == nil {
+		if m, err := ds.GetLastMsgForSubject(ctx, broker.DataFilter(w.asset.Name)); err == nil {
+			last = m.Time
+		} else if !errors.Is(err, jetstream.ErrMsgNotFound) {
+			w.log.Warn("last data time not readable: silence counted from now", "err", err)
+		}
+	}
+	if since, err := time.Parse(time.RFC3339Nano, w.ck.SilentSince); err == nil && !last.After(since) {
+		return since, true
+	}
+	if last.IsZero() || last.After(now) {
+		return now, false
+	}
+	return last, false
+}
+
 // checkSilence raises the asset's silent alarm once no batch has been
 // filed for SilentAfter of wall time: the windows it would have had are
 // never opened, so no window raises the per-sensor silent alarms. The
@@ -412,7 +481,11 @@ func (w *assetWorker) checkSilence(now time.Time) error {
 	al := w.proc.alarm(win, AlarmSilent, "", quiet.Seconds(), after.Seconds(),
 		fmt.Sprintf("no data from any sensor of asset %s for %.0f s of wall time (since %s)", w.asset.Name, quiet.Seconds(), since))
 	w.log.Warn("asset silent", "since", since)
-	return w.publishAlarm(al, w.msgID(idx)+"/"+al.Kind+"/"+since)
+	if err := w.publishAlarm(al, w.msgID(idx)+"/"+al.Kind+"/"+since); err != nil {
+		return err
+	}
+	w.ck.SilentSince = w.lastData.UTC().Format(time.RFC3339Nano)
+	return w.saveCheckpoint()
 }
 
 // message is a JSON message on subject with the asset's revision, when it
@@ -531,8 +604,23 @@ func (w *assetWorker) deadLetter(reason, subj string, seq uint64, data []byte, c
 	return nil
 }
 
-// closeReady publishes the windows that can be closed now.
+// closeReady publishes the windows that can be closed now. An idle close
+// waits while the stream holds data for the asset that the consumer has
+// not delivered (see storedAhead): that data belongs in the open windows,
+// and closing them would refuse it as late.
 func (w *assetWorker) closeReady(now time.Time, idle time.Duration) error {
+	if idle > 0 && w.asm.idleDue(now, idle) {
+		wait, restart := w.storedAhead(now)
+		if restart {
+			w.asm.arrival = now
+		}
+		if wait || restart {
+			idle = 0
+		}
+	} else if !w.stall.IsZero() {
+		w.log.Info("idle close no longer put off", "after", now.Sub(w.stall).Round(time.Millisecond))
+		w.stall = time.Time{}
+	}
 	ws := w.asm.ready(now, idle)
 	if err := w.refuseRejected(now); err != nil {
 		return err
@@ -547,6 +635,63 @@ func (w *assetWorker) closeReady(now time.Time, idle time.Duration) error {
 		}
 	}
 	return w.saveCheckpoint()
+}
+
+// stallLookEvery is how often a worker waiting on a stalled consumer asks
+// the stream again.
+const stallLookEvery = time.Second
+
+// storedAhead is asked when an idle close is due. It reports wait when
+// UC_DATA holds a message for the asset after the last one the worker was
+// given: the ordered consumer has stalled (the broker node serving it was
+// lost and the client is recreating it, resuming after the last message
+// delivered), so the silence is not the publishers'. It reports wait too
+// while the stream cannot be read (no leader: the publishers cannot store
+// either), for up to resume_idle, after which idle closes go ahead. When
+// the stream answers again holding nothing newer after such a wait, it
+// reports restart: the publishers may have been cut off as well, and
+// their idle time runs again from now. While waiting it asks the stream
+// at most once per stallLookEvery.
+func (w *assetWorker) storedAhead(now time.Time) (wait, restart bool) {
+	if !w.stall.IsZero() && now.Sub(w.stallLooked) < stallLookEvery {
+		return true, false
+	}
+	w.stallLooked = now
+	ctx, cancel := context.WithTimeout(context.Background(), 2*time.Second)
+	defer cancel()
+	seq, err := w.svc.nextDataSeq(ctx, w.asset.Name, w.asm.lastSeq+1)
+	if err != nil {
+		if w.unreadable.IsZero() {
+			w.unreadable = now
+		}
+		if limit := max(w.svc.site.Service.ResumeIdle.Duration, w.svc.site.Service.Idle.Duration); now.Sub(w.unreadable) >= limit {
+			if !w.stall.IsZero() {
+				w.log.Warn("data stream still not readable: windows close on idle", "for", now.Sub(w.unreadable).Round(time.Second), "err", err)
+				w.stall = time.Time{}
+			}
+			return false, false
+		}
+	} else {
+		w.unreadable = time.Time{}
+		if seq == 0 {
+			stalled := !w.stall.IsZero()
+			if stalled {
+				w.log.Info("idle close no longer put off; idle time starts again", "after", now.Sub(w.stall).Round(time.Millisecond))
+				w.stall = time.Time{}
+			}
+			return false, stalled
+		}
+	}
+	if w.stall.IsZero() {
+		w.stall = now
+		w.svc.met.stalls.WithLabelValues(w.asset.Name).Inc()
+		if err != nil {
+			w.log.Warn("idle close put off: data stream not readable", "last_seq", w.asm.lastSeq, "err", err)
+		} else {
+			w.log.Warn("idle close put off: the data stream holds messages the consumer has not delivered", "last_seq", w.asm.lastSeq, "next_stored", seq)
+		}
+	}
+	return true, false
 }
 
 // window processes one closed window: commissioning or solve, publish.
@@ -630,6 +775,7 @@ func (w *assetWorker) saveCheckpoint() error {
 	ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
 	defer cancel()
 	if _, err := w.svc.stores.State.Put(ctx, checkpointKey(w.asset.Name), data); err != nil {
+		w.svc.noteStore(err)
 		return fmt.Errorf("live: asset %s: checkpoint: %w", w.asset.Name, err)
 	}
 	w.svc.met.stage.WithLabelValues("checkpoint").Observe(time.Since(t0).Seconds())
