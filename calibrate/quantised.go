@@ -31,8 +31,8 @@ func quantumWarning(tq *ingest.TimeQuantum, freq float64) string {
 		return fmt.Sprintf("the time stamps look quantised to %.4g s (steps of %.4g and %.4g s), coarser than the sampling, but do not fit a steady sampling, so they were taken as they are: amplitudes and phases carry a timing error of up to %.4g s%s; write the times with more digits",
 			tq.Quantum, tq.Steps[0], tq.Steps[1], tq.Quantum/2, turn(tq.Quantum/2))
 	}
-	return fmt.Sprintf("the time stamps are quantised to %.4g s, coarser than the %.6g s sample interval (%.6g Hz; steps of %.4g and %.4g s, not gaps or repeated rows): the samples were re-timed on the least-squares line of time against row within each of %d continuous runs before demodulation, moving them by up to %.3g s%s (a logger that truncates its stamps rather than rounding them leaves every time %.3g s early, which the rebuilt times keep%s)",
-		tq.Quantum, tq.Interval, 1/tq.Interval, tq.Steps[0], tq.Steps[1], tq.Runs, tq.MaxShift, turn(tq.MaxShift), tq.Quantum/2, turn(tq.Quantum/2))
+	return fmt.Sprintf("the time stamps are quantised to %.4g s, coarser than the %.6g s sample interval (%.6g Hz; steps of %.4g and %.4g s, %s): the samples were re-timed on the least-squares line of time against row within each of %d continuous runs before demodulation, moving them by up to %.3g s%s (a logger that truncates its stamps rather than rounding them leaves every time %.3g s early, which the rebuilt times keep%s)",
+		tq.Quantum, tq.Interval, 1/tq.Interval, tq.Steps[0], tq.Steps[1], tq.NotGaps(), tq.Runs, tq.MaxShift, turn(tq.MaxShift), tq.Quantum/2, turn(tq.Quantum/2))
 }
 
 // RetimeSamples returns s with its times rebuilt on the steady sampling

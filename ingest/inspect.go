@@ -124,6 +124,13 @@ func Inspect(path string, opts ...Option) (*Inspection, error) {
 		mins[i], maxs[i] = math.Inf(1), math.Inf(-1)
 	}
 	var steps, mags, times []float64
+	var groups []string // the group of each of times, nil without a group column
+	gIdx := -1
+	for i, c := range pl.out {
+		if c == cGroup {
+			gIdx = i
+		}
+	}
 	gaps := &gapHeap{}
 	prev := math.NaN()
 	row := 0
@@ -191,6 +198,16 @@ func Inspect(path string, opts ...Option) (*Inspection, error) {
 			prev = t
 			if len(times) < keepSteps {
 				times = append(times, t)
+				if gIdx >= 0 {
+					// Sensors interleaved on shared stamps are each
+					// sampled on their own (RetimeQuantised by group).
+					gc := rec.Column(gIdx)
+					v := ""
+					if !gc.IsNull(k) {
+						v = gc.ValueStr(k)
+					}
+					groups = append(groups, strings.Clone(v))
+				}
 			}
 			if len(mags) < keepSteps {
 				bx, by, bz := cols[bIdx[0]][k], cols[bIdx[1]][k], cols[bIdx[2]][k]
@@ -227,7 +244,7 @@ func Inspect(path string, opts ...Option) (*Inspection, error) {
 		if len(steps) > 0 {
 			ts.Interval = median(steps)
 			gap := GapFactor * ts.Interval
-			if _, tq := RetimeQuantised(times, nil); tq != nil {
+			if _, tq := RetimeQuantised(times, groups); tq != nil {
 				ts.Quantum = tq
 				in.Warnings = append(in.Warnings, quantumWarning(tq, len(times) < in.Rows))
 				if tq.Uniform {
@@ -302,12 +319,55 @@ type TimeQuantum struct {
 const quantumMinEvidence = 8
 
 // quantumAmbiguousShare is the least share of the rarer step that
-// RetimeQuantised wants before it takes steps of one and two quanta
-// (missing samples?) or of none and one (rows stored twice?) as quantised
-// stamps. It leaves out sampling within 5% of the quantum's rate (950 to
-// 1050 Hz written to the millisecond), whose stamps are then off by an
-// amount that changes only slowly along the log.
+// RetimeQuantised wants before it takes steps of none and one quanta (rows
+// stored twice?) as quantised stamps (of one and two: quantumDropShare).
+// It leaves out sampling within 5% of the quantum's rate (1000 to 1050 Hz
+// written to the millisecond), whose stamps are then off by an amount that
+// changes only slowly along the log.
 const quantumAmbiguousShare = 0.05
+
+// quantumCoarsest is the most quanta the shorter step may hold: with steps
+// of k and k+1 quanta the interval is under k+1 quanta, so a quantum is
+// then over a fifth of the interval. Finer quanta are left alone.
+const quantumCoarsest = 4
+
+// quantumDropShare is the least share of the longer of steps of one and two
+// quanta in stamps taken as quantised. Exact times of a logger that misses
+// one sample in n step one and two intervals too, in a pattern as steady as
+// that of rounded times (2000 Hz missing every 10th sample steps like
+// 1800 Hz written to 0.5 ms); the least-squares line of time against row
+// then has a slope of 1 + 1/(n-1) intervals, within a fifth of the shorter
+// step for n > 6. A slope (and so a share of long steps) further from
+// it, as 800 Hz written to the millisecond gives (1.25 ms: a quarter of the
+// steps 2 ms), is taken as quantisation.
+const quantumDropShare = 0.2
+
+// droppedUnlikely tells whether stamps t stepping one and two quanta q (nk:
+// how many of each) carry the marks of quantisation rather than of exact
+// times missing samples: the longer step quantumDropShare of them or more,
+// a quantum of a power of ten seconds (the times written to so many
+// decimals; exact times of 2000 Hz step 0.5 ms), and every stamp a whole
+// number of quanta (exact times of a logger started at any time are not).
+func droppedUnlikely(t []float64, q, tol float64, nk [2]int) bool {
+	if float64(nk[1]) < quantumDropShare*float64(nk[0]+nk[1]) {
+		return false
+	}
+	if p := math.Pow(10, math.Round(math.Log10(q))); math.Abs(q-p) > tol {
+		return false
+	}
+	q = math.Pow(10, math.Round(math.Log10(q)))
+	off, all := 0, 0
+	for _, v := range t {
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			continue
+		}
+		all++
+		if math.Abs(v-math.Round(v/q)*q) > tol {
+			off++
+		}
+	}
+	return float64(off) <= 1e-3*float64(all)
+}
 
 // RetimeQuantised looks for time stamps quantised to a resolution coarser
 // than the sample interval (TimeQuantum) in times t (group g, or nil: a
@@ -327,7 +387,65 @@ const quantumAmbiguousShare = 0.05
 // as rounding (or truncating) the times of a steady sampling leaves them.
 // Stamps truncated rather than rounded sit half a quantum early on
 // average, which the rebuilt times keep: a phase offset common to the log.
+//
+// Only a quantum over a fifth of the interval counts (steps of at most
+// quantumCoarsest quanta): a finer one moves a time by under a tenth of an
+// interval, and clock jitter of a quantum (a 10 Hz log written to the
+// millisecond) is no quantisation. Steps of one and two quanta are also
+// those of exact times missing samples (quantumDropShare), and are taken
+// as such unless the stamps carry the marks of quantisation.
+//
+// With groups, each group's rows are taken in order on their own (the
+// per-sensor runs of sensors whose rows interleave on shared stamps).
 func RetimeQuantised(t []float64, g []string) ([]float64, *TimeQuantum) {
+	order := groupOrder(g)
+	if order == nil {
+		return retimeQuantised(t, g)
+	}
+	tt, gg := make([]float64, len(t)), make([]string, len(t))
+	for j, i := range order {
+		tt[j], gg[j] = t[i], g[i]
+	}
+	out, tq := retimeQuantised(tt, gg)
+	if out == nil {
+		return nil, tq
+	}
+	res := make([]float64, len(t))
+	for j, i := range order {
+		res[i] = out[j]
+	}
+	return res, tq
+}
+
+// groupOrder is the order of rows that takes each group's rows together,
+// in order, groups in order of first appearance; nil when g is nil or
+// every group's rows are together already.
+func groupOrder(g []string) []int {
+	if g == nil {
+		return nil
+	}
+	first := map[string]int{}
+	together := true
+	for i, v := range g {
+		if _, ok := first[v]; !ok {
+			first[v] = len(first)
+		} else if v != g[i-1] {
+			together = false
+		}
+	}
+	if together {
+		return nil
+	}
+	order := make([]int, len(g))
+	for i := range order {
+		order[i] = i
+	}
+	sort.SliceStable(order, func(a, b int) bool { return first[g[order[a]]] < first[g[order[b]]] })
+	return order
+}
+
+// retimeQuantised is RetimeQuantised on rows whose groups are together.
+func retimeQuantised(t []float64, g []string) ([]float64, *TimeQuantum) {
 	n := len(t)
 	if n < 2*quantumMinEvidence {
 		return nil, nil
@@ -376,7 +494,7 @@ func RetimeQuantised(t []float64, g []string) ([]float64, *TimeQuantum) {
 	q := hi - lo
 	tol := max(0.02*q, 8*ulp)
 	m := math.Round(lo / q)
-	if q < 100*ulp || math.Abs(lo-m*q) > tol {
+	if q < 100*ulp || math.Abs(lo-m*q) > tol || m > quantumCoarsest {
 		return nil, nil
 	}
 	tq := &TimeQuantum{Quantum: q, Steps: [2]float64{m * q, (m + 1) * q}}
@@ -471,9 +589,16 @@ func RetimeQuantised(t []float64, g []string) ([]float64, *TimeQuantum) {
 			nk[k]++
 		}
 	}
-	if (m == 1 && float64(nk[1]) < quantumAmbiguousShare*float64(nk[0]+nk[1])) ||
-		(m == 0 && float64(nk[0]) < quantumAmbiguousShare*float64(nk[0]+nk[1])) {
+	if m == 0 && float64(nk[0]) < quantumAmbiguousShare*float64(nk[0]+nk[1]) {
 		return nil, nil
+	}
+	if m == 1 {
+		if !droppedUnlikely(t, q, tol, nk) {
+			return nil, nil
+		}
+		// The quantum is then a power of ten: taken as it is written.
+		q = math.Pow(10, math.Round(math.Log10(q)))
+		tq.Quantum, tq.Steps = q, [2]float64{q, 2 * q}
 	}
 	// The first slope from the runs between breaks; then the runs are
 	// split where the stamps leave the band (a missing sample hidden in a
@@ -499,7 +624,9 @@ func RetimeQuantised(t []float64, g []string) ([]float64, *TimeQuantum) {
 		}
 	}
 	if evidence < quantumMinEvidence || 10*hidden > evidence || float64(off) > 1e-3*float64(n) || !(dt > 0) {
-		if looks {
+		// Steps of one and two quanta off any steady line are those of
+		// exact times missing samples at random: no quantisation.
+		if looks && m != 1 {
 			return nil, tq
 		}
 		return nil, nil
@@ -537,8 +664,20 @@ func quantumWarning(tq *TimeQuantum, part bool) string {
 		return fmt.Sprintf("time: the stamps look quantised to %s s (steps of %s and %s s), coarser than the sampling, but do not fit a steady sampling%s: each time may be off by up to %s s, which turns an AC phase by 360° × frequency × that; write the times with more digits",
 			short(tq.Quantum), short(tq.Steps[0]), short(tq.Steps[1]), from, short(tq.Quantum))
 	}
-	return fmt.Sprintf("time: the stamps are quantised to %s s, coarser than the sample interval: the steps between rows take %s and %s s, as a steady %s Hz sampling written to %s s gives (the least-squares line of time against row within %s)%s; those are not gaps or repeated rows. AC demodulation re-times the samples on that line (by up to %s s)",
-		short(tq.Quantum), short(tq.Steps[0]), short(tq.Steps[1]), short(1/tq.Interval), short(tq.Quantum), runsWord(tq.Runs), from, short(tq.MaxShift))
+	return fmt.Sprintf("time: the stamps are quantised to %s s, coarser than the sample interval: the steps between rows take %s and %s s, as a steady %s Hz sampling written to %s s gives (the least-squares line of time against row within %s)%s; those are %s. AC demodulation re-times the samples on that line (by up to %s s)",
+		short(tq.Quantum), short(tq.Steps[0]), short(tq.Steps[1]), short(1/tq.Interval), short(tq.Quantum), runsWord(tq.Runs), from, tq.NotGaps(), short(tq.MaxShift))
+}
+
+// NotGaps words why the steps of uniform quantised stamps tq are not gaps
+// or repeated rows. Steps of one and two quanta are also those of exact
+// times missing samples, and it names that reading too: "not gaps or
+// repeated rows" or "read as not gaps or repeated rows, though exact times
+// of a 1000 Hz logger missing 20% of its samples step alike".
+func (tq *TimeQuantum) NotGaps() string {
+	if !tq.Uniform || math.Abs(tq.Steps[0]-tq.Quantum) > 0.02*tq.Quantum {
+		return "not gaps or repeated rows"
+	}
+	return fmt.Sprintf("read as not gaps or repeated rows, though exact times of a %s Hz logger missing %.0f%% of its samples step alike", short(1/tq.Quantum), 100*(1-tq.Quantum/tq.Interval))
 }
 
 // runsWord is "the run" or "each of the N continuous runs".
