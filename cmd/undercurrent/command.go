@@ -77,10 +77,16 @@ func (c *command) printHelp(w io.Writer, fs *pflag.FlagSet) {
 	case "serve", "version":
 	case "simulate":
 		fmt.Fprintf(w, "\n%s\n", simulateInterruptHelp)
+	case "replay":
+		fmt.Fprintf(w, "\n%s\n", replayInterruptHelp)
 	default:
 		fmt.Fprintf(w, "\n%s\n", interruptHelp)
 	}
-	fmt.Fprintf(w, "\n%s\n", exitHelp)
+	if c.name == "serve" || c.name == "replay" {
+		fmt.Fprintf(w, "\n%s\n", brokerExitHelp)
+	} else {
+		fmt.Fprintf(w, "\n%s\n", exitHelp)
+	}
 }
 
 // interruptHelp says what Ctrl-C does (serve documents its own draining).
@@ -93,6 +99,20 @@ and directories appear whole or not at all) and exits with status 130
 const simulateInterruptHelp = `Ctrl-C (SIGINT) or SIGTERM stops the command before it writes anything; it
 prints "interrupted", writes no output (each file appears whole or not at
 all) and exits with status 130 (SIGINT) or 143 (SIGTERM).` + "\n" + tempHelp
+
+// replayInterruptHelp is interruptHelp for replay, whose output is broker
+// messages: those sent before the interrupt are not withdrawn.
+const replayInterruptHelp = `Ctrl-C (SIGINT) or SIGTERM stops the replay between batches; it prints
+"interrupted" and exits with status 130 (SIGINT) or 143 (SIGTERM). The
+batches sent before the interrupt stay in the broker and are processed:
+run the same replay again within two minutes to send the rest (the broker
+drops the repeated batches); run later, the repeats are stored again and
+the pipeline refuses them as late.`
+
+// brokerExitHelp is exitHelp for serve and replay, which write no files.
+const brokerExitHelp = `Exit status: 0 on success; 1 on failure (a site file or log that cannot be
+read or used, a broker that cannot be reached or refuses); 2 on a usage
+error: a bad flag, flag value or argument, found before any work is done.`
 
 // tempHelp says what becomes of the temporary names outputs are written
 // under when a run is killed outright (see removeStaleTemps).
