@@ -69,8 +69,10 @@ type DespikeReport struct {
 }
 
 // FindSpikes runs the spike filter over each column and marks the rows
-// that are spikes on any column, or hold a non-finite value. The window is
-// clipped at the ends of the columns; callers split at group boundaries.
+// that are spikes on any column, or hold a non-finite value. The window
+// stays within the columns (moved inwards at their ends; readings of a
+// run too short to judge, under about ten, are left alone); callers split
+// at group boundaries.
 // perCol counts spikes per column. All columns must have the same length
 // (it panics otherwise, a programming mistake).
 func FindSpikes(cols [][]float64, set *DespikeSettings) (spike []bool, perCol []int, nonFinite int, err error) {
@@ -135,8 +137,26 @@ func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
 // a sine's of 4 or more readings a cycle. (The median filter cut readings
 // of the line at 2.5 spacings and of the dipoles at 6.)
 //
-// A window with fewer than minTrendPoints neighbours (a run of a few
-// readings) takes the median and MAD of its readings instead.
+// Near an end of the run the window of 2K+1 rows is moved inwards, so
+// that the reading keeps as many neighbours, and its own neighbours there
+// are taken too, so that the fit is carried one row beyond them and not
+// two. Where the window is lopsided (more neighbours on one side), the
+// fit is extrapolated, and a curved flank bends a quadratic carried past
+// its neighbours away from the readings by more than the neighbours'
+// scale: on clean simulated traverses over a line current it took 9% of
+// the first and last two readings for spikes at 5 scales, and the spike
+// warning fired on them at 10 (calibrate's despike end tests). There a
+// reading is a spike only if the cubic and the quartic fitted to the same
+// neighbours, each with four degrees of freedom for its scale, also put
+// it beyond the cut, each fit's scale taking in its own prediction
+// variance at the reading's row (g00 above). A lopsided window needs
+// minTrendPoints+1 neighbours (the cubic's), a centred one
+// minTrendPoints; a reading with fewer (a run of under about ten
+// readings) is not judged: the median and MAD of so short a run, which
+// spans the anomaly, took the anomaly for spikes (a 7-reading traverse
+// lost 2 of its 7 clean readings to --despike). Only a HalfWidth under 5,
+// too narrow a window for a quadratic anywhere, takes the median and MAD
+// of the window instead.
 
 // trendDropCut is the most scales a neighbour may depart from the first
 // fit and stay in the second: another spike is left out even when the
@@ -159,21 +179,65 @@ func trendSpikes(c []float64, ds DespikeSettings, spike []bool) int {
 			continue
 		}
 		tf.reset()
-		for j := max(0, i-K); j < min(n, i+K+1); j++ {
-			if (j < i-1 || j > i+1) && finite(c[j]) {
+		// The window of 2K+1 rows centred on the reading, moved inwards
+		// where it meets an end of the run, so that a reading there is
+		// judged on as many neighbours as one in the middle.
+		lo, hi := i-K, i+K+1
+		if lo < 0 {
+			lo, hi = 0, hi-lo
+		}
+		if hi > n {
+			lo, hi = max(0, lo-(hi-n)), n
+		}
+		// Next to an end the reading's own neighbours are taken too, so
+		// that the fit is carried one row beyond them, not two.
+		skip := 1
+		if lo != i-K || hi != i+K+1 {
+			skip = 0
+		}
+		left := 0
+		for j := lo; j < hi; j++ {
+			if (j < i-skip || j > i+skip) && finite(c[j]) {
 				// Relative to the reading judged: the fit's value at its
 				// row is then the departure, without cancellation.
 				tf.add(float64(j-i), c[j]-xi)
+				if j < i {
+					left++
+				}
 			}
 		}
+		m := len(tf.u)
+		cut := ds.Threshold * ds.Floor
 		var dev, s float64
-		if len(tf.u) < minTrendPoints {
-			if len(tf.u) == 0 {
+		switch {
+		case tf.full < minTrendPoints:
+			// A window too narrow for a trend (a HalfWidth under 5).
+			if m == 0 {
 				continue
 			}
 			dev, s = tf.median()
-		} else {
-			dev, s = tf.fit(min(ds.Threshold, trendDropCut), ds.Threshold*ds.Floor)
+		case left != m-left:
+			// Lopsided (next to an end, or beside missing readings):
+			// the fit is carried beyond its neighbours on one side.
+			if m < minTrendPoints+1 {
+				continue // not enough for the cubic's second opinion
+			}
+			// A spike only if the cubic and the quartic (each given
+			// four degrees of freedom for its scale), carried there
+			// too, say so as well: a curved flank bends the
+			// quadratic's extrapolation off the readings, the higher
+			// orders' less.
+			for deg := 2; deg <= 4 && m >= minTrendPoints+deg-2; deg++ {
+				dev, s = tf.fit(min(ds.Threshold, trendDropCut), cut, deg)
+				if math.Abs(dev) <= ds.Threshold*math.Max(s, ds.Floor) {
+					break
+				}
+			}
+		case m < minTrendPoints:
+			// Too few neighbours to judge (a short run): left alone.
+			continue
+		default:
+			dev, s = tf.fit(min(ds.Threshold, trendDropCut), cut, 2)
 		}
 		if math.Abs(dev) > ds.Threshold*math.Max(s, ds.Floor) {
 			count++
@@ -265,25 +329,31 @@ func middle(w []float64) float64 {
 	return 0.5 * (w[m/2-1] + w[m/2])
 }
 
-// fit fits the quadratic to the neighbours, refits once without those
-// departing by more than k scales, and returns the reading's departure
-// from the fit at its row (the reading being 0) and the scale. A first
-// departure under half of quiet (the cut at the scale's floor) cannot be
-// a spike: it returns that departure and a zero scale without the rest.
-func (f *trendFit) fit(k, quiet float64) (dev, s float64) {
+// fit fits a polynomial of degree deg (2, the quadratic; 3 or 4) to the
+// neighbours, refits once without those departing by more than k scales,
+// and returns the reading's departure from the fit at its row (the
+// reading being 0) and the scale. A first departure under half of quiet
+// (the cut at the scale's floor) cannot be a spike: it returns that
+// departure and a zero scale without the rest. A singular fit returns
+// zeros (no spike).
+func (f *trendFit) fit(k, quiet float64, deg int) (dev, s float64) {
 	m := len(f.u)
 	keep := f.keep[:m]
 	for j := range keep {
 		keep[j] = true
 	}
-	b, g00, ok := f.solve(keep)
+	solve := f.solve
+	if deg > 2 {
+		solve = func(keep []bool) ([5]float64, float64, bool) { return f.solvePoly(keep, deg+1) }
+	}
+	b, g00, ok := solve(keep)
 	if !ok {
-		return f.median()
+		return 0, 0
 	}
 	if math.Abs(b[0]) <= 0.5*quiet {
 		return -b[0], 0
 	}
-	s = f.scale(keep, b, g00)
+	s = f.scale(keep, b, g00, float64(deg+1))
 	drop := 0
 	for j := range m {
 		if math.Abs(f.r[j]) > k*s {
@@ -291,9 +361,9 @@ func (f *trendFit) fit(k, quiet float64) (dev, s float64) {
 			drop++
 		}
 	}
-	if drop > 0 && m-drop >= minTrendPoints {
-		if b2, g2, ok := f.solve(keep); ok {
-			b, s = b2, f.scale(keep, b2, g2)
+	if drop > 0 && m-drop >= minTrendPoints+deg-2 {
+		if b2, g2, ok := solve(keep); ok {
+			b, s = b2, f.scale(keep, b2, g2, float64(deg+1))
 		}
 	}
 	return -b[0], s
@@ -302,11 +372,11 @@ func (f *trendFit) fit(k, quiet float64) (dev, s float64) {
 // solve fits x = b0 + b1 u + b2 u² to the kept neighbours by least
 // squares and returns the coefficients and g00, the (0,0) entry of the
 // inverse normal matrix; ok is false when that matrix is singular.
-func (f *trendFit) solve(keep []bool) (b [3]float64, g00 float64, ok bool) {
-	if len(f.u) == f.full && f.w[0] != nil && !slices.Contains(keep, false) {
+func (f *trendFit) solve(keep []bool) (b [5]float64, g00 float64, ok bool) {
+	if m := len(f.u); m == f.full && f.w[0] != nil && f.u[0] == -f.u[m-1] && !slices.Contains(keep, false) {
 		// The whole window: its weights.
 		x := f.x[:f.full]
-		for i := range b {
+		for i := range f.w {
 			w := f.w[i][:len(x)]
 			var v float64
 			for j, xj := range x {
@@ -350,12 +420,72 @@ func (f *trendFit) solve(keep []bool) (b [3]float64, g00 float64, ok bool) {
 	return b, c00 / det, true
 }
 
-// scale fills f.r with every neighbour's departure from the fit b and
-// returns the scale of the kept ones' (see trendSpikes).
-func (f *trendFit) scale(keep []bool, b [3]float64, g00 float64) float64 {
+// solvePoly fits a polynomial of P coefficients (P up to 5: a cubic or a
+// quartic), x = b0 + b1 u + ... + b(P-1) u^(P-1), to the kept neighbours by
+// least squares and returns the coefficients and g00, the (0,0) entry of
+// the inverse normal matrix: the fit's prediction variance at the
+// reading's row is σ² x0ᵀ(XᵀX)⁻¹x0 with x0 = (1, 0, ..., 0), that is σ² g00
+// (the standard error of a least-squares prediction).
+// The normal equations, in u over its largest size (which leaves b0 and
+// g00 as they are), are solved by Gauss-Jordan elimination with partial
+// pivoting together with the inverse's first column. ok is false when
+// the matrix is singular.
+func (f *trendFit) solvePoly(keep []bool, P int) (b [5]float64, g00 float64, ok bool) {
+	U := 0.0
+	for j, u := range f.u {
+		if keep[j] {
+			U = max(U, math.Abs(u))
+		}
+	}
+	var a [5][7]float64 // [N | Xᵀx | e0]
+	for j, u := range f.u {
+		if !keep[j] {
+			continue
+		}
+		v := u / U
+		p := [5]float64{1, v, v * v, v * v * v, v * v * v * v}
+		for r := range P {
+			for c := range P {
+				a[r][c] += p[r] * p[c]
+			}
+			a[r][P] += p[r] * f.x[j]
+		}
+	}
+	a[0][P+1] = 1
+	m := a[0][0]
+	for c := range P {
+		piv := c
+		for r := c + 1; r < P; r++ {
+			if math.Abs(a[r][c]) > math.Abs(a[piv][c]) {
+				piv = r
+			}
+		}
+		a[c], a[piv] = a[piv], a[c]
+		if !(math.Abs(a[c][c]) > 1e-9*m) {
+			return b, 0, false
+		}
+		for r := range P {
+			if r != c {
+				q := a[r][c] / a[c][c]
+				for k := c; k < P+2; k++ {
+					a[r][k] -= q * a[c][k]
+				}
+			}
+		}
+	}
+	for r, Uk := 0, 1.0; r < P; r, Uk = r+1, Uk*U {
+		b[r] = a[r][P] / a[r][r] / Uk
+	}
+	return b, a[0][P+1] / a[0][0], true
+}
+
+// scale fills f.r with every neighbour's departure from the fit b (p
+// parameters: a quadratic, or a cubic) and returns the scale of the kept
+// ones' (see trendSpikes).
+func (f *trendFit) scale(keep []bool, b [5]float64, g00, p float64) float64 {
 	a := f.a[:0]
 	for j, u := range f.u {
-		r := f.x[j] - (b[0] + u*(b[1]+u*b[2]))
+		r := f.x[j] - (b[0] + u*(b[1]+u*(b[2]+u*(b[3]+u*b[4]))))
 		f.r[j] = r
 		if keep[j] {
 			a = append(a, math.Abs(r))
@@ -363,7 +493,7 @@ func (f *trendFit) scale(keep []bool, b [3]float64, g00 float64) float64 {
 	}
 	f.a = a
 	m := len(a)
-	return 1.4826 * selectMedian(a) * math.Sqrt(float64(m)/float64(m-3)*(1+g00))
+	return 1.4826 * selectMedian(a) * math.Sqrt(float64(m)/(float64(m)-p)*(1+g00))
 }
 
 // selectMedian returns the median of a, reordering it (Hoare's

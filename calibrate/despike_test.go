@@ -135,8 +135,9 @@ func TestTrendSpikesMatchesDirect(t *testing.T) {
 	// The moment sums and cofactor solve of trendSpikes must decide as a
 	// direct computation does: each window's quadratic fitted by gonum's
 	// QR least squares (mat.Dense.Solve), refitted without the neighbours
-	// beyond k scales, on data with a trend, ties, spikes and NaNs, and
-	// the median test where a window holds under minTrendPoints readings.
+	// beyond k scales, on data with a trend, ties, spikes and NaNs; in a
+	// lopsided window (next to an end) the cubic's and quartic's too; and the median
+	// test where the settings' window holds under minTrendPoints readings.
 	rng := rand.New(rand.NewPCG(27, 28))
 	x := make([]float64, 3000)
 	for i := range x {
@@ -148,7 +149,7 @@ func TestTrendSpikesMatchesDirect(t *testing.T) {
 			x[i] = math.NaN()
 		}
 	}
-	scaleOf := func(r []float64, keep []bool, g00 float64) float64 {
+	scaleOf := func(r []float64, keep []bool, g00 float64, p int) float64 {
 		var a []float64
 		for j, v := range r {
 			if keep[j] {
@@ -156,18 +157,20 @@ func TestTrendSpikesMatchesDirect(t *testing.T) {
 			}
 		}
 		m := float64(len(a))
-		return 1.4826 * median(a, nil) * math.Sqrt(m/(m-3)*(1+g00))
+		return 1.4826 * median(a, nil) * math.Sqrt(m/(m-float64(p))*(1+g00))
 	}
-	fit := func(u, y []float64, keep []bool) (b0, g00 float64, r []float64) {
+	fit := func(u, y []float64, keep []bool, p int) (b0, g00 float64, r []float64) {
 		var rows []float64
 		var ys []float64
 		for j := range u {
 			if keep[j] {
-				rows = append(rows, 1, u[j], u[j]*u[j])
+				for k, uk := 0, 1.0; k < p; k, uk = k+1, uk*u[j] {
+					rows = append(rows, uk)
+				}
 				ys = append(ys, y[j])
 			}
 		}
-		A := mat.NewDense(len(ys), 3, rows)
+		A := mat.NewDense(len(ys), p, rows)
 		var b mat.VecDense
 		if err := b.SolveVec(A, mat.NewVecDense(len(ys), ys)); err != nil {
 			t.Fatal(err)
@@ -178,7 +181,11 @@ func TestTrendSpikesMatchesDirect(t *testing.T) {
 			t.Fatal(err)
 		}
 		for j := range u {
-			r = append(r, y[j]-(b.AtVec(0)+b.AtVec(1)*u[j]+b.AtVec(2)*u[j]*u[j]))
+			v := y[j]
+			for k, uk := 0, 1.0; k < p; k, uk = k+1, uk*u[j] {
+				v -= b.AtVec(k) * uk
+			}
+			r = append(r, v)
 		}
 		return b.AtVec(0), inv.At(0, 0), r
 	}
@@ -193,29 +200,33 @@ func TestTrendSpikesMatchesDirect(t *testing.T) {
 				}
 				continue
 			}
+			// The window of 2K+1 rows moved inwards at an end, where the
+			// reading's own neighbours are taken too.
+			lo, hi, skip := i-K, i+K+1, 1
+			if lo < 0 {
+				lo, hi, skip = 0, hi-lo, 0
+			}
+			if hi > len(x) {
+				lo, hi, skip = max(0, lo-(hi-len(x))), len(x), 0
+			}
 			var u, y []float64
-			for j := max(0, i-K); j < min(len(x), i+K+1); j++ {
-				if (j < i-1 || j > i+1) && finite(x[j]) {
+			left := 0
+			for j := lo; j < hi; j++ {
+				if (j < i-skip || j > i+skip) && finite(x[j]) {
 					u = append(u, float64(j-i))
 					y = append(y, x[j]-xi)
+					if j < i {
+						left++
+					}
 				}
 			}
-			var dev, sc float64
-			if len(u) < minTrendPoints {
-				w := append(append([]float64(nil), y...), 0)
-				med := median(w, nil)
-				var d []float64
-				for _, v := range w {
-					d = append(d, math.Abs(v-med))
-				}
-				dev, sc = -med, 1.4826*median(d, nil)
-			} else {
+			trend := func(p int) (dev, sc float64) {
 				keep := make([]bool, len(u))
 				for j := range keep {
 					keep[j] = true
 				}
-				b0, g00, r := fit(u, y, keep)
-				dev, sc = -b0, scaleOf(r, keep, g00)
+				b0, g00, r := fit(u, y, keep, p)
+				dev, sc = -b0, scaleOf(r, keep, g00, p)
 				drop := 0
 				for j := range r {
 					if math.Abs(r[j]) > ds.Threshold*sc {
@@ -223,10 +234,36 @@ func TestTrendSpikesMatchesDirect(t *testing.T) {
 						drop++
 					}
 				}
-				if drop > 0 && len(u)-drop >= minTrendPoints {
-					b0, g00, r = fit(u, y, keep)
-					dev, sc = -b0, scaleOf(r, keep, g00)
+				if drop > 0 && len(u)-drop >= minTrendPoints+p-3 {
+					b0, g00, r = fit(u, y, keep, p)
+					dev, sc = -b0, scaleOf(r, keep, g00, p)
 				}
+				return dev, sc
+			}
+			var dev, sc float64
+			switch {
+			case 2*K-2 < minTrendPoints:
+				w := append(append([]float64(nil), y...), 0)
+				med := median(w, nil)
+				var d []float64
+				for _, v := range w {
+					d = append(d, math.Abs(v-med))
+				}
+				dev, sc = -med, 1.4826*median(d, nil)
+			case left != len(u)-left:
+				if len(u) < minTrendPoints+1 {
+					continue
+				}
+				for p := 3; p <= 5 && len(u) >= minTrendPoints+p-3; p++ {
+					dev, sc = trend(p)
+					if math.Abs(dev) <= ds.Threshold*math.Max(sc, ds.Floor) {
+						break
+					}
+				}
+			case len(u) < minTrendPoints:
+				continue
+			default:
+				dev, sc = trend(3)
 			}
 			want := math.Abs(dev) > ds.Threshold*math.Max(sc, ds.Floor)
 			// A departure within a part in 1e9 of the cut may fall

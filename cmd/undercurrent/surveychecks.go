@@ -18,8 +18,9 @@ import (
 // for the warning. It is twice calibrate.Despike's default cut-off, so
 // that the warning does not fire on noise: for Gaussian noise a departure
 // of 10 sigma has a probability of about 1.5e-23 (the normal tail,
-// erfc(10/sqrt 2)), and even with the window's noisy scale estimate the
-// clean simulated surveys in the tests show none.
+// erfc(10/sqrt 2)), and even with the window's noisy scale estimate at
+// most one clean simulated survey in a hundred warns, at the ends of its
+// traverses and on short traverses too (TestSpikeWarningCleanSurveys).
 const spikeSigmas = 10
 
 // spikeFraction is the share of readings that must be spikes for the
@@ -29,8 +30,9 @@ const spikeSigmas = 10
 // Kestrel Moor survey takes its current from 1.8 A to 0.17 A).
 const spikeFraction = 1e-3
 
-// spikeWarning runs the Hampel filter that --despike uses, with the
-// stricter spikeSigmas cut-off, over each run of rows of one group (or
+// spikeWarning runs the spike filter that --despike uses (each reading
+// against the local trend of its neighbours; calibrate.FindSpikes), with
+// the stricter spikeSigmas cut-off, over each run of rows of one group (or
 // the whole log), and returns a warning when at least spikeFraction of
 // the readings (and at least one) are spikes; "" otherwise. A single
 // spike in a traverse of a few hundred readings, 800 nT beside a 1333 nT
