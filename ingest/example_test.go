@@ -122,12 +122,14 @@ func ExampleWriteFileAtomic() {
 	// out of ideas true
 }
 
-// Inspect summarises a log in one pass.
+// Inspect summarises a log in one pass. (The sensor is turned on the spot
+// and its field, written in mT, keeps its size: a total field, not a
+// zero-field log.)
 func ExampleInspect() {
 	dir, _ := os.MkdirTemp("", "example")
 	defer os.RemoveAll(dir)
 	p := filepath.Join(dir, "kestrel-moor.csv")
-	os.WriteFile(p, []byte("time,bx,by,bz\n0,0.002,0.019,-0.046\n1,0.002,0.019,-0.046\n2,0.002,0.019,-0.046\n9,0.002,0.019,-0.046\n"), 0o644)
+	os.WriteFile(p, []byte("time,bx,by,bz\n0,0.002,0.019,-0.046\n1,0.019,-0.002,-0.046\n2,-0.002,-0.019,-0.046\n9,-0.019,0.002,-0.046\n"), 0o644)
 	in, err := ingest.Inspect(p)
 	if err != nil {
 		log.Fatal(err)

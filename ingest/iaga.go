@@ -57,10 +57,10 @@ type iagaReader struct {
 	rb       rawBatch
 	done     bool
 	pending  []byte // first data line, read while looking for the header
-	// width is the length of every data line read so far (IAGA-2002
-	// records are fixed-width, 70 characters), 0 before the first, -1
+	// decimals is the number of decimals of the last value of every data
+	// line read so far (IAGA-2002 writes two), -1 before the first, -2
 	// once two differ.
-	width int
+	decimals int
 	// baseline is the baseline declination (radians east) by which variation
 	// data in H D Z or H E Z are turned to geographic axes; 0 when they are
 	// not (set from the header in newIAGAReader).
@@ -113,7 +113,7 @@ func iagaKey(label string) string {
 
 func newIAGAReader(name string, rd io.Reader, cfg *config) (*iagaReader, error) {
 	closer, _ := rd.(io.Closer)
-	r := &iagaReader{name: name, closer: closer, cfg: cfg, br: bufio.NewReaderSize(rd, 64<<10), last: math.NaN()}
+	r := &iagaReader{name: name, closer: closer, cfg: cfg, br: bufio.NewReaderSize(rd, 64<<10), last: math.NaN(), decimals: -1}
 	meta := map[string]string{}
 	var columns []string
 	decbasLine, decbasText := 0, ""
@@ -337,23 +337,33 @@ func (r *iagaReader) Next() bool {
 		}
 		// A copy cut short ends inside its last record, without the line
 		// end every other record has: its last value would be read cut
-		// (F = 523 for 52382.xx). IAGA-2002 records are fixed-width
-		// (the IAGA-2002 format description of IAGA Division V-DAT: 70 characters
-		// and a line end), so a last line shorter than the lines before
-		// it, all of one width, is the cut.
-		if err == io.EOF && r.width > 0 && len(ln) < r.width {
-			r.err = lineErr(r.name, r.line, "", string(ln), "the file ends inside this IAGA-2002 data line: it has %d characters and no line end, where every data line before it has %d (the format's records are fixed-width): a copy cut short, whose last value would be read cut; get the whole file, or delete this line to read the rest", len(ln), r.width)
-			break
+		// (F = 523 for 52382.43). A data line holds date, time, day of
+		// year and four values, each value with two decimals (the
+		// IAGA-2002 format description of IAGA Division V-DAT), so a last
+		// line without its line end that lacks fields, or whose last
+		// value has fewer decimals than the last value of every line
+		// before it, is the cut. Its width says nothing: a line typed
+		// again by hand with other spacing is whole.
+		last := bytes.Fields(ln)
+		if err == io.EOF && !bytes.HasSuffix(raw, []byte("\r")) {
+			if d := valueDecimals(last); len(last) < 7 || r.decimals > 0 && d < r.decimals {
+				what := fmt.Sprintf("it has %d of the 7 fields of a data line (date, time, day of year and four values)", len(last))
+				if len(last) >= 7 {
+					what = fmt.Sprintf("its last value %s has %d of the %d decimals of the last value of every data line before it, so it would be read cut", quoteText(string(last[len(last)-1])), d, r.decimals)
+				}
+				r.err = lineErr(r.name, r.line, "", string(ln), "the file ends inside this IAGA-2002 data line, which has no line end: %s; a copy cut short: get the whole file, or delete this line to read the rest", what)
+				break
+			}
 		}
 		if e := r.parseRow(ln, rb, hasF); e != nil {
 			r.err = e
 			break
 		}
-		switch {
-		case r.width == 0:
-			r.width = len(ln)
-		case r.width != len(ln):
-			r.width = -1
+		switch d := valueDecimals(last); {
+		case r.decimals == -1:
+			r.decimals = d
+		case r.decimals != d:
+			r.decimals = -2
 		}
 		if len(raw) > 0 && err != nil {
 			break
@@ -365,6 +375,27 @@ func (r *iagaReader) Next() bool {
 	}
 	r.cur = r.pl.record(r.cfg.mem, rb)
 	return true
+}
+
+// valueDecimals returns the number of digits after the decimal point of
+// the last of a data line's fields (0 when it has none, or no point).
+func valueDecimals(fields [][]byte) int {
+	if len(fields) == 0 {
+		return 0
+	}
+	v := fields[len(fields)-1]
+	i := bytes.IndexByte(v, '.')
+	if i < 0 {
+		return 0
+	}
+	n := 0
+	for _, c := range v[i+1:] {
+		if c < '0' || c > '9' {
+			break
+		}
+		n++
+	}
+	return n
 }
 
 // iagaFormatLine reports whether a line is the first line of an IAGA-2002

@@ -140,6 +140,7 @@ func Inspect(path string, opts ...Option) (*Inspection, error) {
 			bIdx[c-cBx] = i
 		}
 	}
+	var vecs [][3]float64 // the field vectors of mags, for guessUnits
 	for r.Next() {
 		rec := r.RecordBatch()
 		cols := make([][]float64, n)
@@ -171,6 +172,7 @@ func Inspect(path string, opts ...Option) (*Inspection, error) {
 					bx, by, bz := cols[bIdx[0]][k], cols[bIdx[1]][k], cols[bIdx[2]][k]
 					if m := math.Sqrt(bx*bx + by*by + bz*bz); !math.IsNaN(m) {
 						mags = append(mags, m)
+						vecs = append(vecs, [3]float64{bx, by, bz})
 					}
 				}
 				continue
@@ -213,6 +215,7 @@ func Inspect(path string, opts ...Option) (*Inspection, error) {
 				bx, by, bz := cols[bIdx[0]][k], cols[bIdx[1]][k], cols[bIdx[2]][k]
 				if m := math.Sqrt(bx*bx + by*by + bz*bz); !math.IsNaN(m) {
 					mags = append(mags, m)
+					vecs = append(vecs, [3]float64{bx, by, bz})
 				}
 			}
 		}
@@ -267,7 +270,7 @@ func Inspect(path string, opts ...Option) (*Inspection, error) {
 		}
 	}
 	in.Warnings = append(in.Warnings, pl.warnings...)
-	in.Warnings = append(in.Warnings, guessUnits(pl, in, mags)...)
+	in.Warnings = append(in.Warnings, guessUnits(pl, in, mags, vecs)...)
 	return in, nil
 }
 
@@ -697,35 +700,69 @@ func median(v []float64) float64 {
 	return s[len(s)/2]
 }
 
-// guessUnits looks for values that only make sense in another unit.
-func guessUnits(pl *plan, in *Inspection, mags []float64) []string {
+// guessUnits looks for values that only make sense in another unit. mags
+// are |B| of the rows looked at, vecs their field vectors.
+//
+// A median |B| below the Earth's band is not by itself a sign of a wrong
+// unit: a zero-field log (a sensor inside a magnetic shield, which reads
+// its own offset, commonly some hundreds of nT) or a log with the Earth's
+// field removed is small in nT too. Another unit is named only when nT
+// cannot explain the log: when the field keeps its size while it turns in
+// the sensor's axes, as the Earth's field does for a sensor carried or
+// turned (turningTotalField); when it keeps its size while the sensor
+// moves a metre or more (out of any shield, and steadier than a log with
+// the Earth's field removed, which is the conductors' field and noise);
+// or when it is below 1 pT, under the noise of a single reading of any
+// field magnetometer. Otherwise the warning names those logs first. (A
+// steady log in mG taken in one place without turning the sensor is told
+// its unit may be wrong, not which.)
+func guessUnits(pl *plan, in *Inspection, mags []float64, vecs [][3]float64) []string {
 	var w []string
 	if len(mags) > 0 {
 		m := median(mags) // nT
 		if m < earthMin || m > earthMax {
 			raw := m / pl.scale[cBx]
-			found := false
+			found, fits := false, ""
 			// mG (1 mG = 100 nT) is a unit the readers accept; a log in
 			// it read as nT sits at 150-800, below the band.
 			for _, u := range []string{"T", "mT", "G", "uT", "mG", "nT", "pT"} {
 				f, _ := unitScale(kindField, u)
 				if u != pl.unit[cBx] && raw*f >= earthMin && raw*f <= earthMax {
-					w = append(w, fmt.Sprintf("field: median |B| is %.4g %s, outside the Earth's field band of 15000-80000 nT; "+
-						"if these are total-field readings the columns are probably in %s (try units bx=%s,by=%s,bz=%s)",
-						raw, pl.unit[cBx], u, u, u, u))
-					found = true
+					fits = u
 					break
 				}
 			}
-			if !found {
-				// No unit explains it: the Earth's field removed, or a
-				// unit or scale the readers do not know.
+			small := m < earthMin
+			notNT := !small || m < 1e-3 || turningTotalField(mags, vecs) || movedMetre(in) && steadySize(mags)
+			switch {
+			case fits != "" && notNT:
+				w = append(w, fmt.Sprintf("field: median |B| is %.4g %s, outside the Earth's field band of 15000-80000 nT; "+
+					"if these are total-field readings the columns are probably in %s (try units bx=%s,by=%s,bz=%s)",
+					raw, pl.unit[cBx], fits, fits, fits, fits))
+				found = true
+			case fits != "":
 				in := ""
 				if pl.unit[cBx] != "nT" {
 					in = fmt.Sprintf(" (%.4g %s)", raw, pl.unit[cBx])
 				}
-				w = append(w, fmt.Sprintf("field: median |B| is %.4g nT%s, outside the Earth's field band of 15000-80000 nT, and in none of the units T, mT, G, uT, mG, nT, pT would it fall inside: right for a log with the Earth's field removed; otherwise the field columns' unit or scale is wrong (try units bx=U,by=U,bz=U)",
+				w = append(w, fmt.Sprintf("field: median |B| is %.4g nT%s, outside the Earth's field band of 15000-80000 nT: right for a zero-field log (a sensor inside a magnetic shield, which reads mostly its own offset) or a log with the Earth's field removed; if these are instead total-field readings taken in the open, the field columns' unit is wrong (try units bx=U,by=U,bz=U)",
 					m, in))
+				found = true
+			}
+			if !found {
+				// No unit explains it: the Earth's field removed, a
+				// zero-field log, or a unit or scale the readers do not
+				// know.
+				in := ""
+				if pl.unit[cBx] != "nT" {
+					in = fmt.Sprintf(" (%.4g %s)", raw, pl.unit[cBx])
+				}
+				why := "right for a log with the Earth's field removed"
+				if small {
+					why = "right for a zero-field log (a sensor inside a magnetic shield) or a log with the Earth's field removed"
+				}
+				w = append(w, fmt.Sprintf("field: median |B| is %.4g nT%s, outside the Earth's field band of 15000-80000 nT, and in none of the units T, mT, G, uT, mG, nT, pT would it fall inside: %s; otherwise the field columns' unit or scale is wrong (try units bx=U,by=U,bz=U)",
+					m, in, why))
 			}
 		}
 	}
@@ -752,6 +789,61 @@ func guessUnits(pl *plan, in *Inspection, mags []float64) []string {
 		w = append(w, "missing values: "+strings.Join(miss, ", "))
 	}
 	return w
+}
+
+// turningTotalField reports whether the field of a log keeps its size
+// while its direction turns in the sensor's axes, as the Earth's field
+// does for a sensor that is carried or turned: the middle 80% of |B|
+// span at most 10% of its median (steadySize), and the middle 80% of the
+// components span a box whose diagonal is at least 0.3 of it (a chord of
+// 2 sin(θ/2): a turn of 17° or more, which a change of size alone, along
+// one direction, cannot make). An offset read in a shield stays put in the sensor's axes,
+// and a log with the Earth's field removed changes its size as it changes
+// direction, so neither does both.
+func turningTotalField(mags []float64, vecs [][3]float64) bool {
+	if len(vecs) != len(mags) || !steadySize(mags) {
+		return false
+	}
+	_, mid, _ := percentiles(mags)
+	diag := 0.0
+	for k := range 3 {
+		c := make([]float64, len(vecs))
+		for i, v := range vecs {
+			c[i] = v[k]
+		}
+		lo, _, hi := percentiles(c)
+		diag += (hi - lo) * (hi - lo)
+	}
+	return math.Sqrt(diag) >= 0.3*mid
+}
+
+// steadySize reports whether the middle 80% of |B| (two readings or more)
+// span at most 10% of its median, as a total field's do.
+func steadySize(mags []float64) bool {
+	if len(mags) < 2 {
+		return false
+	}
+	lo, mid, hi := percentiles(mags)
+	return mid > 0 && hi-lo <= 0.1*mid
+}
+
+// movedMetre reports whether the log's positions span a metre or more in
+// x or y.
+func movedMetre(in *Inspection) bool {
+	for _, c := range []string{ColX, ColY} {
+		if s := colStats(in, c); s != nil && s.Min != nil && *s.Max-*s.Min >= 1 {
+			return true
+		}
+	}
+	return false
+}
+
+// percentiles returns the 10th, 50th and 90th percentiles of v (by rank).
+func percentiles(v []float64) (p10, p50, p90 float64) {
+	s := append([]float64(nil), v...)
+	sort.Float64s(s)
+	n := len(s)
+	return s[n/10], s[n/2], s[min(n-1, n*9/10)]
 }
 
 func colStats(in *Inspection, name string) *ColumnStats {

@@ -3,8 +3,11 @@ package ingest
 import (
 	"fmt"
 	"math"
+	"regexp"
 	"strconv"
 	"strings"
+	"unicode"
+	"unicode/utf8"
 
 	"github.com/apache/arrow-go/v18/arrow"
 	"github.com/apache/arrow-go/v18/arrow/array"
@@ -487,33 +490,26 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 }
 
 // unknownNameUnit refuses a field column mapped by name (c) whose name
-// states a unit that is not read: a bracketed one ("Bx [mgauss]" before it
-// was read, "Bx [0.1 nT]"), a known unit in another case ("Bx_MT": mT or
-// megatesla?) or a known unit followed by more ("Bx_nT_x10"). Read as nT,
-// the default, such a column's values would be off by the unit's factor
-// without a word. A name whose last word is no unit ("mag_x", "Field X")
-// states none and is read in nT as before.
+// states a unit that is not read: a known unit in another case or with
+// another prefix ("Bx_MT": mT or megatesla?, "Bx (fT)", "Bx [kG]"), a
+// number with a unit ("Bx [0.1 nT]"), a unit with more after it
+// ("Bx_nT_x10", "Bx (uT, filtered)") or a unit that is not a field's
+// ("Bx (mV)"). Read as nT, the default, such a column's values would be
+// off by the unit's factor without a word. A name whose suffix holds no
+// unit ("mag_x", "Field X", "Mag X (sensor 2)", "fluxgate_x (filtered)",
+// "Bx (raw)") states none and is read in nT as before, and so is one whose
+// one-letter middle word might be a unit ("sensor_g_x": "g" is gauss only
+// as the name's last word, "bx_g").
 func (p *plan) unknownNameUnit(c, headerLine int) error {
 	name := strings.TrimSpace(p.header[p.src[c]])
-	_, u := SplitUnit(name)
+	base, u := SplitUnit(name)
 	bracketed := strings.HasSuffix(name, ")") || strings.HasSuffix(name, "]")
-	unitWord := func(w string) bool {
-		if _, err := unitScale(kindField, w); err == nil {
-			return true
-		}
-		for _, k := range []string{"nT", "pT", "uT", "mT", "T", "G", "mG", "Oe"} {
-			if strings.EqualFold(w, k) {
-				return true
-			}
-		}
-		return false
-	}
-	stated := bracketed || unitWord(u)
+	stated := unitLikeText(u, bracketed)
 	if !stated {
-		words := strings.FieldsFunc(name, func(r rune) bool { return r == '_' || r == ' ' })
-		for i := 1; i+1 < len(words) && !stated; i++ {
-			if stated = unitWord(words[i]); stated {
-				// "nT_x10": the unit and what follows it.
+		// A unit word before the suffix: "nT_x10", "uT (filtered)".
+		words := strings.FieldsFunc(base, func(r rune) bool { return r == '_' || r == ' ' })
+		for i := 1; i < len(words) && !stated; i++ {
+			if stated = utf8.RuneCountInString(words[i]) > 1 && unitLikeWord(words[i]); stated {
 				u = name[strings.LastIndex(name, words[i]):]
 			}
 		}
@@ -522,8 +518,50 @@ func (p *plan) unknownNameUnit(c, headerLine int) error {
 		return nil
 	}
 	return &Error{File: p.file, Line: headerLine, Batch: -1, Column: name,
-		Msg: fmt.Sprintf("its name (mapped to %s) states the unit %q, which is not a field unit read here (nT, pT, uT, mT, T, G or gauss, mG or milligauss, Oe): read as nT by default, its values would be off by that unit's factor; give the column's unit with a unit option %s=U (on the command line --unit %s=U), or name the unit in the column's name as %s_uT does",
+		Msg: fmt.Sprintf("its name (mapped to %s) states the unit %q, which is not a field unit read here (nT or nanotesla or gamma, pT, uT, mT, T, G or gauss, mG or milligauss, Oe): read as nT by default, its values would be off by that unit's factor; give the column's unit with a unit option %s=U (on the command line --unit %s=U), or name the unit in the column's name as %s_uT does",
 			canonNames[c], u, canonNames[c], canonNames[c], canonNames[c])}
+}
+
+// unitLikeWord reports whether a word looks like a unit of magnetic field
+// in any case, with or without an SI prefix (nT, MT, fT, kG, mgauss,
+// kilogauss, Oe), or a length unit of two letters or more (cm, ft): not
+// an ordinary word.
+func unitLikeWord(w string) bool {
+	if fieldUnitWord.MatchString(w) {
+		return true
+	}
+	_, err := unitScale(kindLength, w)
+	return err == nil && utf8.RuneCountInString(w) > 1
+}
+
+var (
+	fieldUnitWord = regexp.MustCompile(`(?i)^((f|p|n|u|µ|μ|m|k|M|G)?(t|g|oe)|(femto|pico|nano|micro|milli|kilo|mega)?(teslas?|gauss|gammas?|oersteds?))$`)
+	// A number and a one-letter unit: "0.1 T", "1e-4T", "T x10", "10G".
+	numberUnit = regexp.MustCompile(`^([x×*/]\s*)?[-+]?([0-9]+([.,][0-9]*)?|[.,][0-9]+)([eE][-+]?[0-9]+)?\s*[*·×]?\s*[TtGgV]$|^[TtGgV]\s*[x×*/·]\s*[-+]?([0-9]+([.,][0-9]*)?|[.,][0-9]+)([eE][-+]?[0-9]+)?$`)
+	volts      = regexp.MustCompile(`^(m|u|µ|μ)V$`)
+)
+
+// unitLikeText reports whether a column name's unit suffix s (bracketed:
+// the text in brackets) that is not read states a unit all the same: it
+// is a unit-like word ("MT"), has one of two letters or more among other
+// words and numbers ("0.1 nT", "uT, filtered", "mV") or is a number with
+// a one-letter unit ("0.1 T"). Ordinary words ("filtered", "sensor 2",
+// "raw") state none.
+func unitLikeText(s string, bracketed bool) bool {
+	s = strings.TrimSpace(s)
+	if s == "" {
+		return false
+	}
+	if unitLikeWord(s) || volts.MatchString(s) || numberUnit.MatchString(s) ||
+		bracketed && (s == "V" || strings.EqualFold(s, "A/m") || strings.EqualFold(s, "kA/m")) {
+		return true
+	}
+	for _, w := range strings.FieldsFunc(s, func(r rune) bool { return !unicode.IsLetter(r) }) {
+		if utf8.RuneCountInString(w) > 1 && (unitLikeWord(w) || volts.MatchString(w)) {
+			return true
+		}
+	}
+	return false
 }
 
 // frameWords names the axes of a frame for messages.

@@ -43,6 +43,19 @@ func unitScale(k kind, u string) (float64, error) {
 			return 1e2, nil
 		case "oersted":
 			return 1e5, nil
+		// The SI names written out, and the gamma, the name of 1 nT
+		// long used in geophysics and still in survey logs (1 γ = 1 nT
+		// = 1e-9 T, BIPM, SI Brochure, 8th ed., 2006, Table 10).
+		case "nanotesla", "nanoteslas", "gamma", "gammas":
+			return 1, nil
+		case "picotesla", "picoteslas":
+			return 1e-3, nil
+		case "microtesla", "microteslas":
+			return 1e3, nil
+		case "millitesla", "milliteslas":
+			return 1e6, nil
+		case "tesla", "teslas":
+			return 1e9, nil
 		}
 		return 0, fmt.Errorf("unknown field unit %q (want nT, pT, uT, mT, T, G or mG)", u)
 	case kindLength:

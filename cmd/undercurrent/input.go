@@ -458,7 +458,11 @@ func checkFieldUnits(ctx context.Context, path string, bx, by, bz []float64, opt
 		return "", err
 	}
 	if w == "" {
-		w = fmt.Sprintf("median |B| is %.4g nT, outside %s: right for a log with the Earth's field removed; otherwise the field columns' unit is wrong (give it with --unit bx=U,by=U,bz=U)", m, earthBand)
+		why := "a log with the Earth's field removed"
+		if m < earthMinNT {
+			why = "a zero-field log (a sensor inside a magnetic shield) or " + why
+		}
+		w = fmt.Sprintf("median |B| is %.4g nT, outside %s: right for %s; otherwise the field columns' unit is wrong (give it with --unit bx=U,by=U,bz=U)", m, earthBand, why)
 	}
 	if !unitGiven && (m < implausibleLowNT || m > implausibleHighNT) {
 		limit := "below 1 pT"

@@ -17,9 +17,19 @@ func TestCalibrateZeroAdviceNames(t *testing.T) {
 	if err := os.WriteFile(shield, []byte("time,Field X (probe),Field Y (probe),Field Z (probe)\n0,15.0,200.0,-470.0\n1,15.1,200.0,-470.0\n"), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	// The bracketed word "probe" is no unit: refused as one not read.
+	// The bracketed word "probe" is no unit: the names state none, and
+	// the advice builds names from the axes, not "Field X (probe)_nT".
 	code, _, stderr := cli(t, "calibrate", "--zero", shield, "--column", "bx=Field X (probe),by=Field Y (probe),bz=Field Z (probe)")
-	if code != 1 || !strings.Contains(stderr, `column Field X (probe): its name (mapped to bx) states the unit "probe"`) {
+	if code != 2 || !strings.Contains(stderr, "or put it in the column names (bx_nT, by_nT, bz_nT)") || strings.Contains(stderr, "(probe)_nT") {
+		t.Errorf("exit %d, stderr:\n%s\nwant names built from the axes suggested", code, stderr)
+	}
+	// A bracketed number with a unit is a unit not read: refused.
+	scaled := filepath.Join(dir, "scaled.csv")
+	if err := os.WriteFile(scaled, []byte("time,Field X [0.1 nT],Field Y [0.1 nT],Field Z [0.1 nT]\n0,150,2000,-4700\n1,151,2000,-4700\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	code, _, stderr = cli(t, "calibrate", "--zero", scaled, "--column", "bx=Field X [0.1 nT],by=Field Y [0.1 nT],bz=Field Z [0.1 nT]")
+	if code != 1 || !strings.Contains(stderr, `column Field X [0.1 nT]: its name (mapped to bx) states the unit "0.1 nT"`) {
 		t.Errorf("exit %d, stderr:\n%s\nwant the unknown unit in the name refused", code, stderr)
 	}
 	plain := filepath.Join(dir, "plain.csv")
