@@ -32,7 +32,10 @@ import (
 // reaches zero; it is reported when it lies within the groups where the
 // track was followed (half a group spacing beyond its ends allowed), and
 // otherwise the track is said to run at an angle to conductor 1 without
-// crossing it there.
+// crossing it there. A track whose offsets all lie on one side of
+// conductor 1 is said to meet it there, not to cross it: a branch leaving
+// conductor 1 at a tee looks so (tee.toml), as does a crossing the fits
+// do not show beyond it, and the readings do not tell the two apart.
 
 // crossR2 is the least share of the variance of a track's offsets that a
 // straight line in chainage must explain for their spread to count as the
@@ -52,6 +55,9 @@ type trackCrossing struct {
 	// followed.
 	chainage      float64
 	meets, inside bool
+	// oneSide is true when all the track's offsets lie on one side of
+	// conductor 1.
+	oneSide bool
 	// first and last are the track's offsets at its first and last
 	// matched stations, m (positive to the right looking along
 	// conductor 1's increasing chainage), at keys firstKey and lastKey.
@@ -114,6 +120,7 @@ func crossingOf(d *Document, t *Track) (trackCrossing, bool) {
 		angle: angle,
 		first: ps[0].offset, firstKey: ps[0].key,
 		last: ps[len(ps)-1].offset, lastKey: ps[len(ps)-1].key,
+		oneSide: lo > 0 || hi < 0,
 	}
 	// Least-squares line of offset against chainage, and the share of the
 	// offsets' variance it explains.
@@ -197,6 +204,8 @@ func (c trackCrossing) where(d *Document) string {
 // "crosses conductor 1 at about 45° near chainage 12.0 m (at T05)".
 func (c trackCrossing) clause(d *Document) string {
 	switch {
+	case c.meets && c.inside && c.oneSide:
+		return fmt.Sprintf("meets conductor 1 at about %.0f° near chainage %.1f m (%s), seen on one side of it only (a branch from it, or a crossing the fits do not show beyond it)", c.angle, c.chainage, c.where(d))
 	case c.meets && c.inside:
 		return fmt.Sprintf("crosses conductor 1 at about %.0f° near chainage %.1f m (%s)", c.angle, c.chainage, c.where(d))
 	case c.meets:

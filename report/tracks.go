@@ -39,11 +39,27 @@ import (
 //     is true, and both lines of each group's pair carry its number.
 //   - The groups are walked in route order. Each open track predicts the
 //     offset at the group: its last offset, carried on by the slope between
-//     its last two stations (per metre of chainage, at most 1 in magnitude)
-//     when it has two, so that two conductors whose offsets approach, meet
-//     and part again keep their own tracks instead of swapping at the
-//     meeting. A source's distance from a track is taken in the cross
-//     section, from the predicted offset and the track's last depth:
+//     its last two stations (per metre of chainage) when it has two, so
+//     that two conductors whose offsets approach, meet and part again keep
+//     their own tracks instead of swapping at the meeting. A track of one
+//     station carries its offset on by the slope of its source's own
+//     fitted direction: a line at angle theta in plan to conductor 1 moves
+//     across it by tan(theta) per metre of chainage (plane geometry), so
+//     a cable crossing conductor 1 at 15 degrees moves 1.07 m between
+//     traverses 4 m apart and, predicted flat, never reached the 1 m gate
+//     of its next station (found in review: such a cable, fitted on all
+//     15 traverses, was followed on none, and the least cover named the
+//     deeper conductor 1). Either slope is held to at most tan 60 degrees
+//     in magnitude, the angle beyond which crossOffset places a line by
+//     its own point rather than where it meets the cross section. Over
+//     the chainage dc to the group the one-station prediction is
+//     uncertain by dc times the slope's sigma (from the source's azimuth
+//     sigma), which widens the gate below in quadrature (twice that
+//     sigma), so that a weak line with a poorly fitted direction is not
+//     lost for it; a line parallel to conductor 1 has slope about 0 and
+//     is predicted flat, as before. A source's distance from a track is
+//     taken in the cross section, from the predicted offset and the
+//     track's last depth:
 //
 //     distance = hypot(offset - predicted offset, depth - last depth)
 //
@@ -102,7 +118,12 @@ type trackSource struct {
 	offset      float64 // signed offset from the primary conductor, m
 	depth       float64 // depth below the depth reference, m
 	current     float64 // |current|, A (a pair's |net current|)
-	pair        *inverse.PairEstimate
+	// slope is the change of offset per metre of chainage along the
+	// source's own fitted direction, tan of its angle in plan to the
+	// primary conductor held within maxTrackSlope, and slopeSigma its
+	// one-sigma uncertainty (0 when not known): see predict.
+	slope, slopeSigma float64
+	pair              *inverse.PairEstimate
 }
 
 // lines are the indices of the fit's sources that m stands for: its
@@ -125,29 +146,69 @@ func trackGate(depthA, depthB float64) float64 {
 const maxTrackGap = 3
 
 // maxTrackSlope bounds the change of a track's offset per metre of
-// chainage used to predict its next offset.
-const maxTrackSlope = 1.0
+// chainage used to predict its next offset: tan 60 degrees, the angle in
+// plan beyond which crossOffset places a line by its own point.
+var maxTrackSlope = math.Sqrt(3)
+
+// maxSlopeSigma bounds the slope sigma used to widen a one-station
+// track's gate: a direction known no better than that (about 45 degrees
+// of azimuth near parallel) is no direction.
+const maxSlopeSigma = 1.0
 
 // openTrack is a track being built by associate.
 type openTrack struct {
 	members []trackSource
 }
 
-// predict is the track's offset expected at chainage c.
-func (t *openTrack) predict(c float64) float64 {
+// predict is the track's offset expected at chainage c, and the
+// uncertainty of that prediction, m, by which the gate is widened (zero
+// for a track of two or more stations).
+func (t *openTrack) predict(c float64) (offset, sigma float64) {
 	n := len(t.members)
 	last := t.members[n-1]
+	dc := c - last.chainage
 	if n < 2 {
-		return last.offset
+		// One station: carried on along its own fitted direction.
+		slope := clampSlope(last.slope)
+		return last.offset + slope*dc, math.Abs(dc) * math.Min(last.slopeSigma, maxSlopeSigma)
 	}
 	prev := t.members[n-2]
-	dc := last.chainage - prev.chainage
-	if dc <= 0 {
-		return last.offset
+	span := last.chainage - prev.chainage
+	if span <= 0 {
+		return last.offset, 0
 	}
-	slope := (last.offset - prev.offset) / dc
-	slope = math.Max(-maxTrackSlope, math.Min(maxTrackSlope, slope))
-	return last.offset + slope*(c-last.chainage)
+	slope := clampSlope((last.offset - prev.offset) / span)
+	return last.offset + slope*dc, 0
+}
+
+func clampSlope(v float64) float64 {
+	if !finite(v) {
+		return 0
+	}
+	return math.Max(-maxTrackSlope, math.Min(maxTrackSlope, v))
+}
+
+// offsetSlope is the change per metre along u of the offset to the right
+// of u at which a line with direction dir meets the vertical plane square
+// to u, the tangent of their angle in plan (held within maxTrackSlope),
+// and its sigma for an azimuth sigma of sigmaDeg degrees.
+func offsetSlope(u, right [2]float64, dir [3]float64, sigmaDeg float64) (slope, sigma float64) {
+	along := dir[0]*u[0] + dir[1]*u[1]
+	across := dir[0]*right[0] + dir[1]*right[1]
+	h := math.Hypot(along, across)
+	if !(h > 0) || !finite(h) {
+		return 0, 0
+	}
+	if math.Abs(along) < 1e-9*h {
+		slope = math.Copysign(maxTrackSlope, across)
+	} else {
+		slope = clampSlope(across / along)
+	}
+	if sigmaDeg > 0 && finite(sigmaDeg) {
+		// d tan(theta) / d theta = 1 + tan^2(theta).
+		sigma = (1 + slope*slope) * sigmaDeg * math.Pi / 180
+	}
+	return slope, sigma
 }
 
 // associate links the candidate sources of the groups, given in route
@@ -175,8 +236,9 @@ func associate(groups [][]trackSource, minStations int) [][]trackSource {
 					// are not one profile: a track takes one kind.
 					continue
 				}
-				pred := t.predict(c.chainage)
-				if d := math.Hypot(c.offset-pred, c.depth-last.depth); d <= trackGate(c.depth, last.depth) {
+				pred, sp := t.predict(c.chainage)
+				gate := math.Hypot(trackGate(c.depth, last.depth), 2*sp)
+				if d := math.Hypot(c.offset-pred, c.depth-last.depth); d <= gate {
 					pairs = append(pairs, pair{ti, ci, d})
 				}
 			}
@@ -290,9 +352,11 @@ func trackCandidates(fits []Fit, r *route.Route, pairRoute, ac bool) [][]trackSo
 				continue
 			}
 			inPair[a], inPair[b] = true, true
+			slope, slopeSigma := offsetSlope(u, right, q.Dir, q.AzimuthSigma)
 			out[k] = append(out[k], trackSource{
 				fit: p.Index, source: -1, pos: k, chainage: p.Chainage,
 				offset: off, depth: depth, current: math.Abs(q.NetCurrent), pair: q,
+				slope: slope, slopeSigma: slopeSigma,
 			})
 		}
 		for j, s := range res.Sources[1:] {
@@ -306,9 +370,16 @@ func trackCandidates(fits []Fit, r *route.Route, pairRoute, ac bool) [][]trackSo
 			if !finite(off) || !finite(depth) {
 				continue
 			}
+			var slope, slopeSigma float64
+			if s.Identifiable.Azimuth {
+				// A held direction (a single traverse that did not
+				// determine it) says nothing: predicted flat.
+				slope, slopeSigma = offsetSlope(u, right, s.Dir, s.AzimuthSigma)
+			}
 			out[k] = append(out[k], trackSource{
 				fit: p.Index, source: j + 1, pos: k, chainage: p.Chainage,
 				offset: off, depth: depth, current: math.Abs(s.Current),
+				slope: slope, slopeSigma: slopeSigma,
 			})
 		}
 	}
