@@ -633,6 +633,7 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute boo
 			st.Current, st.CurrentSigma = circ.NetCurrent, circ.NetCurrentSigma
 			st.Phase, st.PhaseSigma = circ.NetCurrentPhase, circ.NetCurrentPhaseSigma
 			st.Depth, st.DepthSigma = circ.Depth, circ.DepthSigma
+			st.PairNet = true
 			partner = circ.Lines[0] + circ.Lines[1]
 		}
 		for j, o := range res.Sources {

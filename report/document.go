@@ -1,5 +1,7 @@
 package report
 
+import "encoding/json"
+
 // SchemaVersion is the version of the result document written by this
 // package. It grows by one whenever a field changes meaning or is removed;
 // adding a field does not change it.
@@ -484,6 +486,34 @@ type Station struct {
 	CoverSigma *float64 `json:"cover_sigma_m,omitempty"`
 	// Used is true when the station entered the step and cover checks.
 	Used bool `json:"used"`
+}
+
+// estimated reports whether s's current and depth are estimates: a
+// station left out (not Used) with zero sigmas is one whose fit failed and
+// estimated nothing, and its zeros are not measurements.
+func (s *Station) estimated() bool {
+	return s.Used || s.CurrentSigma != 0 || s.DepthSigma != 0
+}
+
+// MarshalJSON writes s as an element of results.json's route stations. A
+// station whose fit estimated nothing (estimated) has no current_a,
+// current_sigma_a, depth_m or depth_sigma_m, as results.csv leaves those
+// cells empty: 0 ± 0 would read as an exact measurement of no current at
+// no depth. ReadJSON reads the missing members as zero.
+func (s Station) MarshalJSON() ([]byte, error) {
+	type plain Station // Station's members without this method
+	if s.estimated() {
+		return json.Marshal(plain(s))
+	}
+	// The members named here take the place of plain's of the same name
+	// (the shallower field wins) and, nil, are left out.
+	return json.Marshal(struct {
+		plain
+		Current      *float64 `json:"current_a,omitempty"`
+		CurrentSigma *float64 `json:"current_sigma_a,omitempty"`
+		Depth        *float64 `json:"depth_m,omitempty"`
+		DepthSigma   *float64 `json:"depth_sigma_m,omitempty"`
+	}{plain: plain(s)})
 }
 
 // Severities of findings, most pressing first.

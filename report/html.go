@@ -754,15 +754,26 @@ func (v *view) summarise() {
 // the local frame and in WGS84 when the survey is geo-referenced, the
 // group chainage increases towards, and the bearing it sets off on. A
 // crew measuring from its own pegs must add their distance to the first
-// traverse. It is empty without a route of two stations or more.
+// traverse. When the first group's fit is not used (Station.Used), its
+// point is not the conductor's: chainage 0 is then placed on the route
+// back from the first used station, and the bearing is the route's from
+// there (routeStart). It is empty without a route of two stations or
+// more, or without a used station.
 func ChainageZero(d *Document) string {
-	_, dir, ok := routeStart(d)
+	at, dir, ok := routeStart(d)
 	if !ok {
 		return ""
 	}
 	r := d.Route
 	first, last := r.Stations[0], r.Stations[len(r.Stations)-1]
-	p := first.Point
+	u := first // the first used station (routeStart found one)
+	for _, s := range r.Stations {
+		if s.Used {
+			u = s
+			break
+		}
+	}
+	p := [3]float64{at[0], at[1], u.Point[2]}
 	where := en(p)
 	if lon, lat, ok := d.wgs84(p); ok {
 		where += " (" + latLon(lat, lon, 6) + ")"
@@ -770,10 +781,18 @@ func ChainageZero(d *Document) string {
 	// Rounded to the degree first, then taken round: 359.98° reads 0°,
 	// not 360°.
 	bearing := math.Mod(math.Round(math.Atan2(dir[0], dir[1])*180/math.Pi)+360, 360)
-	return fmt.Sprintf("Chainage 0 is where the fitted conductor crosses the first traverse along the route, %s, at %s; "+
+	cross := "where the fitted conductor crosses the first traverse along the route, " + first.Key
+	if !first.Used {
+		// The first group's fit failed (or found an object): its point is
+		// the centroid of its readings, not the conductor's, and chainage
+		// 0 lies on the route taken back from the first used station.
+		cross = fmt.Sprintf("on the fitted conductor level with the first traverse along the route, %s (whose fit is not used), %.1f m back along the route from %s, the first group whose fit is used",
+			first.Key, u.Chainage, u.Key)
+	}
+	return fmt.Sprintf("Chainage 0 is %s, at %s; "+
 		"chainage increases from there towards %s, setting off %.0f° from north (%s), "+
 		"and is measured along the fitted route, not from the survey's pegs or marks.",
-		first.Key, where, last.Key, bearing, compassPoint(bearing))
+		cross, where, last.Key, bearing, compassPoint(bearing))
 }
 
 // compassPoint names the nearest of the eight principal points of the

@@ -634,28 +634,54 @@ func startBoxes(p, u [2]float64) []ptBox {
 	return out
 }
 
-// routeStart is the route's first station (chainage 0) and the unit
-// direction, east and north, from it towards the next station at a
-// distinct place (increasing chainage); ok is false without a route of
-// two stations or more.
+// routeStart is the place of chainage 0 on the fitted route and the unit
+// direction, east and north, in which chainage increases from there: the
+// first used station (Station.Used) and the direction towards the next
+// used one at a distinct place (its own direction if there is none), with
+// chainage 0 taken back along that direction by the station's chainage
+// when stations before it were left out. ok is false without a route of
+// two stations or more, or without a used station.
 func routeStart(d *Document) (at, dir [2]float64, ok bool) {
 	r := d.Route
 	if r == nil || len(r.Stations) < 2 {
 		return at, dir, false
 	}
-	s0 := r.Stations[0].Point
-	at = [2]float64{s0[0], s0[1]}
-	for _, st := range r.Stations[1:] {
-		dx, dy := st.Point[0]-s0[0], st.Point[1]-s0[1]
-		if n := math.Hypot(dx, dy); n > 1e-6 {
-			return at, [2]float64{dx / n, dy / n}, true
+	// A station whose fit failed or was taken for an object takes no part
+	// in the route's chain, chainage or orientation: its point is the
+	// centroid of its readings, not the conductor's. Chainage 0 is then
+	// found back along the route from the first used station.
+	first := -1
+	for i := range r.Stations {
+		if r.Stations[i].Used {
+			first = i
+			break
 		}
 	}
-	u := r.Stations[0].Direction
-	if n := math.Hypot(u[0], u[1]); n > 0 {
-		return at, [2]float64{u[0] / n, u[1] / n}, true
+	if first < 0 {
+		return at, dir, false
 	}
-	return at, dir, false
+	s0 := r.Stations[first]
+	p0 := [2]float64{s0.Point[0], s0.Point[1]}
+	for _, st := range r.Stations[first+1:] {
+		if !st.Used {
+			continue
+		}
+		dx, dy := st.Point[0]-p0[0], st.Point[1]-p0[1]
+		if n := math.Hypot(dx, dy); n > 1e-6 {
+			dir, ok = [2]float64{dx / n, dy / n}, true
+			break
+		}
+	}
+	if !ok {
+		u := s0.Direction
+		n := math.Hypot(u[0], u[1])
+		if !(n > 0) {
+			return at, dir, false
+		}
+		dir, ok = [2]float64{u[0] / n, u[1] / n}, true
+	}
+	at = [2]float64{p0[0] - s0.Chainage*dir[0], p0[1] - s0.Chainage*dir[1]}
+	return at, dir, true
 }
 
 // labelBeyond is the box of a label w x h points that lies gap points

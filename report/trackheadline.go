@@ -63,6 +63,10 @@ type trackCrossing struct {
 	// conductor 1's increasing chainage), at keys firstKey and lastKey.
 	first, last       float64
 	firstKey, lastKey string
+	// length is the length of the track along itself between its first
+	// and last matched stations, m: the polyline through the places where
+	// it meets conductor 1's cross sections (see crossingOf).
+	length float64
 }
 
 // crossingOf tells whether track t crosses or runs at an angle to conductor 1 of d
@@ -78,6 +82,7 @@ func crossingOf(d *Document, t *Track) (trackCrossing, bool) {
 	type placed struct {
 		key                     string
 		chainage, offset, angle float64
+		at                      [2]float64 // where the track meets conductor 1's cross section, m E, N
 	}
 	var ps []placed
 	var depths []float64
@@ -102,7 +107,7 @@ func crossingOf(d *Document, t *Track) (trackCrossing, bool) {
 		if !finite(off) {
 			continue
 		}
-		ps = append(ps, placed{s.Key, m.Chainage, off, math.Acos(cos) * 180 / math.Pi})
+		ps = append(ps, placed{s.Key, m.Chainage, off, math.Acos(cos) * 180 / math.Pi, q})
 		depths = append(depths, s.Depth)
 	}
 	if len(ps) < 2 {
@@ -116,9 +121,20 @@ func crossingOf(d *Document, t *Track) (trackCrossing, bool) {
 		lo, hi = math.Min(lo, p.offset), math.Max(hi, p.offset)
 	}
 	angle := median(angles)
+	// The track's own stations are its fitted points nearest the centres
+	// of the groups' readings: for a conductor crossing the traverses at
+	// an angle they are closer together than the traverses along it (by
+	// cos² of the angle for traverses square to conductor 1), and the
+	// track's route length understates the length followed. The places
+	// where it meets conductor 1's cross sections lie on the traverses.
+	var length float64
+	for i := 1; i < len(ps); i++ {
+		length += math.Hypot(ps[i].at[0]-ps[i-1].at[0], ps[i].at[1]-ps[i-1].at[1])
+	}
 	c := trackCrossing{
-		angle: angle,
-		first: ps[0].offset, firstKey: ps[0].key,
+		length: length,
+		angle:  angle,
+		first:  ps[0].offset, firstKey: ps[0].key,
 		last: ps[len(ps)-1].offset, lastKey: ps[len(ps)-1].key,
 		oneSide: lo > 0 || hi < 0,
 	}
@@ -230,7 +246,7 @@ func trackSummary(d *Document, t *Track) string {
 		what, cur = fmt.Sprintf("Conductor %d, a go-and-return pair,", t.Number), "net current"
 	}
 	line := fmt.Sprintf("%s %s: it was followed for %.0f m in %d groups, from %s of conductor 1 at %s to %s at %s (looking along the route)",
-		what, c.clause(d), t.Route.Length, len(t.Route.Stations), sideOf(c.first), c.firstKey, sideOf(c.last), c.lastKey)
+		what, c.clause(d), c.length, len(t.Route.Stations), sideOf(c.first), c.firstKey, sideOf(c.last), c.lastKey)
 	var used []Station
 	for _, s := range t.Route.Stations {
 		if s.Used {
@@ -241,6 +257,9 @@ func trackSummary(d *Document, t *Track) string {
 		a, b := used[0], used[len(used)-1]
 		line += fmt.Sprintf("; %s %s A at %s and %s A at %s",
 			cur, pm(a.Current, a.CurrentSigma), a.Key, pm(b.Current, b.CurrentSigma), b.Key)
+		if !t.Route.PairNet {
+			line += crossingFlow(used)
+		}
 		lo, hi := used[0].Depth, used[0].Depth
 		for _, s := range used {
 			lo, hi = math.Min(lo, s.Depth), math.Max(hi, s.Depth)
@@ -269,4 +288,48 @@ func ConductorBrief(d *Document, t *Track, parallel string) string {
 		return parallel
 	}
 	return fmt.Sprintf("; conductor %d followed on %d traverses, which %s", t.Number, len(t.Route.Stations), c.clause(d))
+}
+
+// crossingFlow says which way a crossing conductor's DC current flows,
+// over its used stations: ", flowing from T15 towards T01 (setting off
+// about 280° from north, about west)". Each station's current is signed
+// along its Direction, turned along increasing chainage of the track, so
+// a negative current flows from the track's last station towards its
+// first. The bearing is the plan direction between the first and last
+// used stations, reversed for a negative current. Empty for AC (the
+// phases say the direction), when no station's current is over two
+// sigma, or when such stations disagree in sign; and for fewer than two
+// used stations at distinct places.
+func crossingFlow(used []Station) string {
+	if len(used) < 2 {
+		return ""
+	}
+	sign := 0
+	for _, s := range used {
+		if s.Phase != nil {
+			return ""
+		}
+		if !(math.Abs(s.Current) > 2*s.CurrentSigma) {
+			continue
+		}
+		k := 1
+		if s.Current < 0 {
+			k = -1
+		}
+		if sign != 0 && k != sign {
+			return ""
+		}
+		sign = k
+	}
+	a, b := used[0], used[len(used)-1]
+	dx, dy := b.Point[0]-a.Point[0], b.Point[1]-a.Point[1]
+	if sign == 0 || !(math.Hypot(dx, dy) > 0) {
+		return ""
+	}
+	from, to := a.Key, b.Key
+	if sign < 0 {
+		from, to, dx, dy = b.Key, a.Key, -dx, -dy
+	}
+	bearing := math.Mod(math.Round(math.Atan2(dx, dy)*180/math.Pi)+360, 360)
+	return fmt.Sprintf(", flowing from %s towards %s (setting off %.0f° from north, %s)", from, to, bearing, compassPoint(bearing))
 }

@@ -464,6 +464,7 @@ func trackStation(f *Fit, m *trackSource, primary *route.Placed) route.Station {
 		st.Depth, st.DepthSigma = q.Depth, q.DepthSigma
 		st.Dipole, st.Object = false, nil
 		st.Further = nil
+		st.PairNet = true
 		return st
 	}
 	j := m.source
@@ -475,6 +476,8 @@ func trackStation(f *Fit, m *trackSource, primary *route.Placed) route.Station {
 	st.Depth, st.DepthSigma = s.Depth, s.DepthSigma
 	st.Dipole, st.Object = false, nil
 	st.Further = nil // the primary's further sources, judged on the primary route
+	// One line's own current, not a pair's net current.
+	st.PairNet = false
 	if f.lineObject != nil && j == f.objectLine {
 		// The object found beside this conductor (checkTrackDipoles):
 		// reported on its track and left out of its current and cover.

@@ -21,6 +21,13 @@ type Station struct {
 	// (degrees), with PhaseSigma.
 	AC                bool
 	Phase, PhaseSigma float64
+	// PairNet is true when Current is a go-and-return pair's net current
+	// (the sum of its cores' currents, the current that does not return
+	// through the pair) rather than one conductor's. A step in it is
+	// then worded as current passing between the circuit and earth or
+	// another path (a fault, a leak), not as a tee or a source joining,
+	// and no direction of feed is read from its sign.
+	PairNet bool
 	// Depth and DepthSigma are the depth below the depth reference and its
 	// one-sigma uncertainty, m.
 	Depth, DepthSigma float64
