@@ -166,7 +166,11 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 	// height is written rounded to the nanometre (nanoMetre) so that the
 	// files do not carry the noise of a mean or a subtraction (0.3 m read
 	// 0.30000000000000066); the fits and the route keep their own values.
+	// When no fit ran, the reference the fits were given (Fit.Settings): a
+	// run whose every fit failed had said depths are below the sensors
+	// though --reference-z was given.
 	d.DepthReference = DepthReference{Kind: DepthBelowSensors, SensorHeight: bs.SensorHeight}
+	fromFit := false
 	for _, f := range fits {
 		if f.Result != nil {
 			if f.Result.DepthReference == "ReferenceZ" {
@@ -174,6 +178,13 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 			} else {
 				d.DepthReference.Z = nanoMetre(f.Result.ReferenceZ)
 			}
+			fromFit = true
+			break
+		}
+	}
+	for i := 0; i < len(fits) && !fromFit; i++ {
+		if s := fits[i].Settings; s != nil && s.ReferenceZ != nil {
+			d.DepthReference = DepthReference{Kind: DepthBelowGround, Z: nanoMetre(*s.ReferenceZ)}
 			break
 		}
 	}
