@@ -293,6 +293,7 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 		}
 	}
 	d.addTracks(tracks)
+	d.addCrossings()
 	d.addLoneCover(fits, r, rs, tracks)
 	d.addPairCover(rs)
 	return &d, nil

@@ -461,6 +461,29 @@ type Track struct {
 	// group it was seen in. Its chainage is measured along this
 	// conductor from its first station.
 	Route Route `json:"route"`
+	// Crossing, when not nil, says that this conductor crosses or runs at
+	// an angle to conductor 1 (the crew report's summary words it so), for
+	// which Offset, a median, means little.
+	Crossing *Crossing `json:"crossing,omitempty"`
+}
+
+// Crossing is how a further conductor runs at an angle to conductor 1.
+type Crossing struct {
+	// AngleDeg is the median angle in plan between the two conductors'
+	// fitted directions, degrees.
+	AngleDeg float64 `json:"angle_deg"`
+	// ChainageM is conductor 1's chainage where this conductor's offset
+	// from it reaches zero, m; nil when the offsets do not change along
+	// the route.
+	ChainageM *float64 `json:"chainage_m,omitempty"`
+	// Crosses is true when that place lies where this conductor was
+	// followed and it was seen on both sides of conductor 1; OneSide when
+	// it was seen on one side only (a branch, or a crossing the fits do
+	// not show beyond it).
+	Crosses bool `json:"crosses"`
+	OneSide bool `json:"one_side"`
+	// LengthM is the length followed along this conductor itself, m.
+	LengthM float64 `json:"length_m"`
 }
 
 // Station is one group's conductor on the route.

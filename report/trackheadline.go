@@ -333,3 +333,24 @@ func crossingFlow(used []Station) string {
 	bearing := math.Mod(math.Round(math.Atan2(dx, dy)*180/math.Pi)+360, 360)
 	return fmt.Sprintf(", flowing from %s towards %s (setting off %.0f° from north, %s)", from, to, bearing, compassPoint(bearing))
 }
+
+// addCrossings records in each further conductor of d that crosses or runs
+// at an angle to conductor 1 how it does (Track.Crossing, see crossingOf).
+func (d *Document) addCrossings() {
+	for i := range d.Conductors {
+		t := &d.Conductors[i]
+		c, ok := crossingOf(d, t)
+		if !ok {
+			continue
+		}
+		x := &Crossing{AngleDeg: round3(c.angle), Crosses: c.meets && c.inside && !c.oneSide, OneSide: c.oneSide, LengthM: round3(c.length)}
+		if c.meets {
+			ch := round3(c.chainage)
+			x.ChainageM = &ch
+		}
+		t.Crossing = x
+	}
+}
+
+// round3 rounds v to the millimetre (or thousandth of a degree).
+func round3(v float64) float64 { return math.Round(v*1000) / 1000 }

@@ -1,6 +1,7 @@
 package report
 
 import (
+	"encoding/json"
 	"math"
 	"strings"
 	"testing"
@@ -124,5 +125,34 @@ func TestParallelConductorSummaryUnchanged(t *testing.T) {
 		if got := ConductorBrief(d, &d.Conductors[0], "; parallel"); got != "; parallel" {
 			t.Errorf("%s: brief %q, want the caller's", name, got)
 		}
+	}
+}
+
+// TestCrossingInDocument: results.json carries what the summary says of a
+// crossing (Track.Crossing): a pipe at 45 degrees crossing the cable at
+// chainage 12 m, followed from 6 m left of it to 6 m right, has an angle
+// of 45 degrees, crosses at 12 m, and was followed for 12/cos(45°) = 16.97 m
+// along itself (plane geometry); the diverging pipe of
+// TestDivergingConductorSummary runs at 10 degrees and does not cross; a
+// parallel conductor has no crossing.
+func TestCrossingInDocument(t *testing.T) {
+	d := crossingDoc(0, 14, 45, 3, 7, nil)
+	d.addCrossings()
+	c := d.Conductors[0].Crossing
+	if c == nil || math.Abs(c.AngleDeg-45) > 0.5 || c.ChainageM == nil || math.Abs(*c.ChainageM-12) > 0.05 || !c.Crosses || c.OneSide ||
+		math.Abs(c.LengthM-12/math.Cos(math.Pi/4)) > 0.1 {
+		t.Errorf("45 degree crossing: %+v", c)
+	}
+	d = crossingDoc(1.5, 0, 10, 1, 9, nil)
+	d.addCrossings()
+	if c := d.Conductors[0].Crossing; c == nil || math.Abs(c.AngleDeg-10) > 0.5 || c.Crosses {
+		t.Errorf("diverging pipe: %+v", c)
+	}
+	b, err := json.Marshal(d.Conductors[0])
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(string(b), `"crossing":{"angle_deg":10`) {
+		t.Errorf("the conductor's JSON does not carry the crossing: %.600s", b)
 	}
 }
