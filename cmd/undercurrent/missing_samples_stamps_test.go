@@ -7,8 +7,6 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
-
-	"undercurrent/inverse/simulate"
 )
 
 // dropEveryTenth copies the log src to dst without every 10th data row,
@@ -102,28 +100,7 @@ func TestInspectFixedSensorsRate(t *testing.T) {
 // to within 1/8 ms, a phase of up to 2.25° at 50 Hz: see
 // calibrate.TestDemodulateQuantisedStamps.)
 func TestLocate812HzMillisecondStamps(t *testing.T) {
-	_, path := scenario(t, "ac-walk-2khz.toml")
-	text, err := os.ReadFile(path)
-	if err != nil {
-		t.Fatal(err)
-	}
-	const rate = "sample_rate_hz = 2000.0"
-	if !strings.Contains(string(text), rate) {
-		t.Fatalf("%s: no %q to change", path, rate)
-	}
-	dir := t.TempDir()
-	scen := filepath.Join(dir, "walk.toml")
-	if err := os.WriteFile(scen, []byte(strings.Replace(string(text), rate, "sample_rate_hz = 812.345", 1)), 0o644); err != nil {
-		t.Fatal(err)
-	}
-	sc, err := simulate.Load(scen)
-	if err != nil {
-		t.Fatal(err)
-	}
-	exact := filepath.Join(dir, "walk.csv")
-	mustCLI(t, "simulate", scen, "-o", exact)
-	ms := filepath.Join(dir, "walk-812-ms.csv")
-	writeMillisecondTimes(t, exact, ms)
+	sc, ms := walkMillisecondStamps(t, "812.345", "walk-812-ms.csv")
 	out := mustCLI(t, "locate", "--json", "--freq", "50", "--window", "0.1", "--group-by", "group", "--reference-z", "0", ms)
 	var doc resultDoc
 	if err := json.Unmarshal([]byte(out), &doc); err != nil {

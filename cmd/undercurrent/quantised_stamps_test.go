@@ -24,28 +24,7 @@ import (
 // depth and position within the allowances of TestE2EACWalk, in 0.1 s
 // windows of 162 samples (0.09977 s), which the result states.
 func TestLocateMillisecondStamps(t *testing.T) {
-	_, path := scenario(t, "ac-walk-2khz.toml")
-	text, err := os.ReadFile(path)
-	if err != nil {
-		t.Fatal(err)
-	}
-	const rate = "sample_rate_hz = 2000.0"
-	if !strings.Contains(string(text), rate) {
-		t.Fatalf("%s: no %q to change", path, rate)
-	}
-	dir := t.TempDir()
-	scen := filepath.Join(dir, "walk.toml")
-	if err := os.WriteFile(scen, []byte(strings.Replace(string(text), rate, "sample_rate_hz = 1623.71", 1)), 0o644); err != nil {
-		t.Fatal(err)
-	}
-	sc, err := simulate.Load(scen)
-	if err != nil {
-		t.Fatal(err)
-	}
-	exact := filepath.Join(dir, "walk.csv")
-	mustCLI(t, "simulate", scen, "-o", exact)
-	ms := filepath.Join(dir, "walk-ms.csv")
-	writeMillisecondTimes(t, exact, ms)
+	sc, ms := walkMillisecondStamps(t, "1623.71", "walk-ms.csv")
 	out := mustCLI(t, "locate", "--json", "--freq", "50", "--window", "0.1", "--group-by", "group", "--reference-z", "0", ms)
 	var doc resultDoc
 	var sig struct {
@@ -113,4 +92,35 @@ func writeMillisecondTimes(t *testing.T, src, dst string) {
 	if err := os.WriteFile(dst, []byte(b.String()), 0o644); err != nil {
 		t.Fatal(err)
 	}
+}
+
+// walkMillisecondStamps simulates the AC walk of ac-walk-2khz.toml sampled at
+// rate Hz (its scenario returned) and writes its log with the times rounded
+// to the millisecond (writeMillisecondTimes) as name in a temporary
+// directory, whose path it returns.
+func walkMillisecondStamps(t *testing.T, rate, name string) (*simulate.Scenario, string) {
+	t.Helper()
+	_, path := scenario(t, "ac-walk-2khz.toml")
+	text, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	const old = "sample_rate_hz = 2000.0"
+	if !strings.Contains(string(text), old) {
+		t.Fatalf("%s: no %q to change", path, old)
+	}
+	dir := t.TempDir()
+	scen := filepath.Join(dir, "walk.toml")
+	if err := os.WriteFile(scen, []byte(strings.Replace(string(text), old, "sample_rate_hz = "+rate, 1)), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	sc, err := simulate.Load(scen)
+	if err != nil {
+		t.Fatal(err)
+	}
+	exact := filepath.Join(dir, "walk.csv")
+	mustCLI(t, "simulate", scen, "-o", exact)
+	ms := filepath.Join(dir, name)
+	writeMillisecondTimes(t, exact, ms)
+	return sc, ms
 }
