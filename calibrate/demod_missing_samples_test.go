@@ -8,22 +8,6 @@ import (
 	"testing"
 )
 
-// dropRows returns c without the rows for which drop(i) is true.
-func dropRows(c *Columns, drop func(i int) bool) *Columns {
-	out := &Columns{}
-	for i := range c.Time {
-		if drop(i) {
-			continue
-		}
-		out.Time = append(out.Time, c.Time[i])
-		for k := 0; k < 3; k++ {
-			out.B[k] = append(out.B[k], c.B[k][i])
-			out.Pos[k] = append(out.Pos[k], c.Pos[k][i])
-		}
-	}
-	return out
-}
-
 // TestDemodulateMissingSamplesKeepTheirTimes: a 50 Hz tone of known RMS
 // phasors (the phasor of IEEE Std C37.118.1: RMS magnitude, phase at
 // absolute time) logged at 2000 Hz with exact times from a whole second,
@@ -35,7 +19,7 @@ func dropRows(c *Columns, drop func(i int) bool) *Columns {
 func TestDemodulateMissingSamplesKeepTheirTimes(t *testing.T) {
 	rng := rand.New(rand.NewPCG(71, 72))
 	const fs = 2000
-	c := dropRows(acLog(rng, fs, 40*fs, 1.7e9, 50, testPhasors, 1), func(i int) bool { return i%10 == 9 })
+	c := columnsWithout(acLog(rng, fs, 40*fs, 1.7e9, 50, testPhasors, 1), func(i int) bool { return i%10 == 9 })
 	res, err := DemodulateColumns(c, &DemodSettings{Freq: 50, Window: 0.2})
 	if err != nil {
 		t.Fatal(err)
@@ -67,7 +51,7 @@ func TestDemodulateMissingSamplesKeepTheirTimes(t *testing.T) {
 func TestDemodulateRandomDropsAdvice(t *testing.T) {
 	rng := rand.New(rand.NewPCG(73, 74))
 	const fs = 2000
-	c := dropRows(acLog(rng, fs, 20*fs, 1.7e9, 50, testPhasors, 1), func(int) bool { return rng.Float64() < 0.12 })
+	c := columnsWithout(acLog(rng, fs, 20*fs, 1.7e9, 50, testPhasors, 1), func(int) bool { return rng.Float64() < 0.12 })
 	res, err := DemodulateColumns(c, &DemodSettings{Freq: 50, Window: 0.02})
 	if err != nil {
 		t.Fatal(err)
