@@ -2,10 +2,8 @@ package main
 
 import (
 	"encoding/json"
-	"fmt"
 	"os"
 	"path/filepath"
-	"strconv"
 	"strings"
 	"testing"
 
@@ -25,28 +23,8 @@ func TestLocateFrameLineNED(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	m := [3][3]float64{{1.04, 0.02, -0.01}, {0.01, 0.97, 0.03}, {-0.02, 0.015, 1.02}}
-	off := [3]float64{180, -95, 240}
-	var b strings.Builder
-	b.WriteString("# undercurrent.frame: ned\ntime,x,y,z,bx,by,bz,group\n")
-	f := func(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
-	for i := range s.Len() {
-		ned := [3]float64{s.By[i], s.Bx[i], -s.Bz[i]}
-		var raw [3]float64
-		for r := range 3 {
-			raw[r] = off[r]
-			for c := range 3 {
-				raw[r] += m[r][c] * ned[c]
-			}
-		}
-		fmt.Fprintf(&b, "%s,%s,%s,%s,%s,%s,%s,%s\n", f(s.Time[i]), f(s.Y[i]), f(s.X[i]), f(-s.Z[i]), f(raw[0]), f(raw[1]), f(raw[2]), s.Group[i])
-	}
-	dir := t.TempDir()
-	log := filepath.Join(dir, "ned.csv")
-	if err := os.WriteFile(log, []byte(b.String()), 0o644); err != nil {
-		t.Fatal(err)
-	}
-	calPath := saveInverseCalibration(t, dir, m, off)
+	log, calPath := writeNEDSensorLog(t, s, "# undercurrent.frame: ned\n")
+	dir := filepath.Dir(log)
 	out := mustCLI(t, "locate", "--json", "--calibration", calPath, "--group-by", "group", "--reference-z", "0", log)
 	var doc resultDoc
 	if err := json.Unmarshal([]byte(out), &doc); err != nil {
@@ -65,8 +43,12 @@ func TestLocateFrameLineNED(t *testing.T) {
 		t.Errorf("calibrate of a log marked ned: exit %d, stderr:\n%s\nwant it refused, naming --frame enu", code, stderr)
 	}
 	// A frame the line does not name is refused, not read as east, north, up.
+	text, err := os.ReadFile(log)
+	if err != nil {
+		t.Fatal(err)
+	}
 	bad := filepath.Join(dir, "bad.csv")
-	if err := os.WriteFile(bad, []byte(strings.Replace(b.String(), "frame: ned", "frame: nez", 1)), 0o644); err != nil {
+	if err := os.WriteFile(bad, []byte(strings.Replace(string(text), "frame: ned", "frame: nez", 1)), 0o644); err != nil {
 		t.Fatal(err)
 	}
 	if code, _, stderr := cli(t, "inspect", bad); code != 1 || !strings.Contains(stderr, `"nez", which names no frame`) {

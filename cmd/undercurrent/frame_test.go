@@ -11,6 +11,7 @@ import (
 	"testing"
 
 	"undercurrent/calibrate"
+	"undercurrent/ingest"
 	"undercurrent/inverse/simulate"
 )
 
@@ -46,28 +47,7 @@ func TestLocateNEDCalibration(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	m := [3][3]float64{{1.04, 0.02, -0.01}, {0.01, 0.97, 0.03}, {-0.02, 0.015, 1.02}}
-	off := [3]float64{180, -95, 240}
-	var b strings.Builder
-	b.WriteString("time,x,y,z,bx,by,bz,group\n")
-	f := func(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
-	for i := range s.Len() {
-		ned := [3]float64{s.By[i], s.Bx[i], -s.Bz[i]} // the field in the sensor's axes
-		var raw [3]float64
-		for r := range 3 {
-			raw[r] = off[r]
-			for c := range 3 {
-				raw[r] += m[r][c] * ned[c]
-			}
-		}
-		fmt.Fprintf(&b, "%s,%s,%s,%s,%s,%s,%s,%s\n", f(s.Time[i]), f(s.Y[i]), f(s.X[i]), f(-s.Z[i]), f(raw[0]), f(raw[1]), f(raw[2]), s.Group[i])
-	}
-	dir := t.TempDir()
-	log := filepath.Join(dir, "ned.csv")
-	if err := os.WriteFile(log, []byte(b.String()), 0o644); err != nil {
-		t.Fatal(err)
-	}
-	calPath := saveInverseCalibration(t, dir, m, off)
+	log, calPath := writeNEDSensorLog(t, s, "")
 	out := mustCLI(t, "locate", "--json", "--frame", "ned", "--calibration", calPath, "--group-by", "group", "--reference-z", "0", log)
 	var doc resultDoc
 	if err := json.Unmarshal([]byte(out), &doc); err != nil {
@@ -82,4 +62,35 @@ func TestLocateNEDCalibration(t *testing.T) {
 			t.Errorf("warning %q: the calibration fits this sensor", w)
 		}
 	}
+}
+
+// writeNEDSensorLog writes the survey s as logged by a sensor carried level
+// with its x, y, z axes along north, east and down, with its own offset and
+// soft-iron matrix in those axes, as a CSV whose text begins with head
+// (then the header row), and saves the calibration that undoes them; it
+// returns the log's and the calibration's paths, in a temporary directory.
+func writeNEDSensorLog(t *testing.T, s *ingest.Samples, head string) (log, calPath string) {
+	t.Helper()
+	m := [3][3]float64{{1.04, 0.02, -0.01}, {0.01, 0.97, 0.03}, {-0.02, 0.015, 1.02}}
+	off := [3]float64{180, -95, 240}
+	var b strings.Builder
+	b.WriteString(head + "time,x,y,z,bx,by,bz,group\n")
+	f := func(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
+	for i := range s.Len() {
+		ned := [3]float64{s.By[i], s.Bx[i], -s.Bz[i]} // the field in the sensor's axes
+		var raw [3]float64
+		for r := range 3 {
+			raw[r] = off[r]
+			for c := range 3 {
+				raw[r] += m[r][c] * ned[c]
+			}
+		}
+		fmt.Fprintf(&b, "%s,%s,%s,%s,%s,%s,%s,%s\n", f(s.Time[i]), f(s.Y[i]), f(s.X[i]), f(-s.Z[i]), f(raw[0]), f(raw[1]), f(raw[2]), s.Group[i])
+	}
+	dir := t.TempDir()
+	log = filepath.Join(dir, "ned.csv")
+	if err := os.WriteFile(log, []byte(b.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return log, saveInverseCalibration(t, dir, m, off)
 }
