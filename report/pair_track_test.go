@@ -3,7 +3,6 @@ package report
 import (
 	"bytes"
 	"encoding/csv"
-	"encoding/json"
 	"math"
 	"strings"
 	"testing"
@@ -128,23 +127,8 @@ func TestPairBesideCableFollowed(t *testing.T) {
 		t.Errorf("results.csv: %d rows of pair lines, want %d", pairRows, 2*len(fits))
 	}
 
-	b.Reset()
-	if err := WriteGeoJSON(&b, d); err != nil {
-		t.Fatal(err)
-	}
-	var fc struct {
-		Features []struct {
-			Geometry struct {
-				Type string `json:"type"`
-			} `json:"geometry"`
-			Properties map[string]any `json:"properties"`
-		} `json:"features"`
-	}
-	if err := json.Unmarshal(b.Bytes(), &fc); err != nil {
-		t.Fatal(err)
-	}
 	line := false
-	for _, f := range fc.Features {
+	for _, f := range geoFeatures(t, d) {
 		if f.Geometry.Type == "LineString" && f.Properties["conductor"] == 2.0 {
 			line = true
 		}
