@@ -350,6 +350,15 @@ type Result struct {
 	// currents. Nil when there is none, or when an unresolved pair (Pairs) holds the
 	// strongest line.
 	Opposed []PairEstimate
+	// SameWay pairs the strongest line with a line the fit found beside it (within
+	// sameWayMaxAngle degrees, nearer than the deeper one's depth) carrying current
+	// the same way, in shares the readings do not part: the sum of the two currents
+	// is known several times better than either (see sameWayOf). One conductor
+	// bending in depth or direction under the readings (where it dives under a road)
+	// is often fitted so, as are two cables laid together. NetCurrent is their sum,
+	// the current of the bundle, with its sigma from the covariance; Spacing the
+	// distance between the lines. Nil when there is none.
+	SameWay []PairEstimate
 	// Notes are cautions about the whole fit.
 	Notes []string
 }

@@ -33,6 +33,11 @@ func TestTwoConductorsSameWay(t *testing.T) {
 					}
 					t.Fatalf("%d lines found, want 2 (RMS %.3g nT)", len(res.Sources), res.RMS)
 				}
+				// Their shares are resolved: no same-way split whose sum the
+				// route would take in place of the 8 A cable.
+				if len(res.SameWay) > 0 {
+					t.Errorf("two resolved cables %g m apart taken as one split conductor: %+v", sep, res.SameWay[0])
+				}
 				want := []struct{ cur, x, depth float64 }{{8, -sep / 2, 1.3}, {3, sep / 2, 1.5}}
 				for i, e := range res.Sources {
 					// The current along north, as simulated (Dir is oriented by azimuth).

@@ -39,6 +39,9 @@ type Fit struct {
 	MeasuredNoise float64
 
 	object *route.Object // the magnetised object found by checkDipoles
+	// sumSplit makes the route take the sum of the strongest line's
+	// same-way split (markSplitSums).
+	sumSplit bool
 	// lineObject is a magnetised object found by checkTrackDipoles beside
 	// the further conductor Result.Sources[objectLine] (Result then holds
 	// the refitted conductors and the object).
@@ -259,6 +262,17 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 		// object beside it (dipole.go): refit those groups and follow the
 		// conductors again.
 		if checkTrackDipoles(fits, r, tracks) {
+			if r, err = analyse(); err != nil {
+				return nil, err
+			}
+			if tracks, err = buildTracks(fits, r, rs, bs.TrackMinStations, pairRoute, ac); err != nil {
+				return nil, err
+			}
+		}
+		// A station whose line the fit split in two, where the sum
+		// fits its neighbours better than the stronger share, takes the
+		// sum (sameway.go): analyse and follow the conductors again.
+		if markSplitSums(fits, r, tracks) {
 			if r, err = analyse(); err != nil {
 				return nil, err
 			}
@@ -647,6 +661,22 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute boo
 			st.Depth, st.DepthSigma = circ.Depth, circ.DepthSigma
 			st.PairNet = true
 			partner = circ.Lines[0] + circ.Lines[1]
+		} else if sw := sameWayOf(res); sw != nil && f.sumSplit {
+			// The strongest line split in two same-way lines whose
+			// shares the readings do not part (inverse.Result.SameWay),
+			// the second followed by no track, and the sum nearer the
+			// current of the stations either side (markSplitSums): the
+			// route takes their sum at their centre, not the stronger
+			// share (a cable diving under a road read 0.9 of 2 A at the
+			// bends in its depth, two false steps).
+			g.Notes = append(g.Notes, splitSumNote(sw, ac))
+			if g.OK {
+				st.Point, st.Dir = sw.Point, sw.Dir
+			}
+			st.Current, st.CurrentSigma = sw.NetCurrent, sw.NetCurrentSigma
+			st.Phase, st.PhaseSigma = sw.NetCurrentPhase, sw.NetCurrentPhaseSigma
+			st.Depth, st.DepthSigma = sw.Depth, sw.DepthSigma
+			partner = sw.Lines[1]
 		}
 		for j, o := range res.Sources {
 			if j == 0 || j == partner {

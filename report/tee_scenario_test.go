@@ -12,14 +12,21 @@ import (
 )
 
 // teeDoc simulates testdata/scenarios/open/tee.toml (the invented Corran
-// Leys tee) with seed, fits each traverse as the locate command does
-// (one or two lines, depths below the ground at up = 0, the noise
-// estimated from the residuals) and builds the document, each group's noise
-// measured from the second differences of successive readings as the
-// locate command measures it (cmd/undercurrent dcnoise.go).
+// Leys tee) with seed and builds its document (scenarioDoc).
 func teeDoc(t *testing.T, seed int64) *Document {
 	t.Helper()
-	sc, err := simulate.Load(filepath.Join("..", "testdata", "scenarios", "open", "tee.toml"))
+	return scenarioDoc(t, filepath.Join("open", "tee.toml"), seed)
+}
+
+// scenarioDoc simulates the scenario file name under testdata/scenarios
+// with seed, fits each traverse as the locate command does (one or two
+// lines, depths below the ground at up = 0, the noise estimated from the
+// residuals) and builds the document, each group's noise measured from the
+// second differences of successive readings as the locate command measures
+// it (cmd/undercurrent dcnoise.go).
+func scenarioDoc(t *testing.T, name string, seed int64) *Document {
+	t.Helper()
+	sc, err := simulate.Load(filepath.Join("..", "testdata", "scenarios", name))
 	if err != nil {
 		t.Fatal(err)
 	}

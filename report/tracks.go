@@ -340,6 +340,9 @@ func trackCandidates(fits []Fit, r *route.Route, pairRoute, ac bool) [][]trackSo
 		u := [2]float64{p.Dir[0] / uh, p.Dir[1] / uh}
 		right := [2]float64{u[1], -u[0]}
 		partner := circuitPartner(&fits[p.Index], ac, pairRoute)
+		if sw := sameWayOf(res); partner < 0 && sw != nil && fits[p.Index].sumSplit {
+			partner = sw.Lines[1] // summed into the station (sameway.go)
+		}
 		inPair := map[int]bool{}
 		for i := range res.Pairs {
 			q := &res.Pairs[i]
