@@ -906,47 +906,34 @@ const opposedMaxAngle = 10
 // described as an unresolved pair is (pairOf), with the spacing; the lines keep
 // their own currents. None when an unresolved pair holds the strongest line.
 func (f *fitter) opposedOf(c *candidate, su *summary) []PairEstimate {
-	if len(su.lines) < 2 || su.lines[0].Kind != "line" {
-		return nil
-	}
-	for _, pe := range su.pairs {
-		if pe.Lines[0] == 0 || pe.Lines[1] == 0 {
-			return nil
-		}
-	}
-	sp := c.sp
-	ac := sp.nrhs == 2
 	var out []PairEstimate
-	for j := 1; j < len(su.lines); j++ {
-		b := &su.lines[j]
-		if b.Kind != "line" || !(math.Abs(math.Remainder(su.lines[0].Azimuth-b.Azimuth, 180)) <= opposedMaxAngle) {
-			continue
-		}
-		base, sg := f.pairQuantities(sp, su, 0, j)
-		foldPair(base, ac)
+	f.linesBeside(c, su, opposedMaxAngle, func(j int, base, sg []float64) {
 		// |I0 + Ij| < |I0 - Ij| when Re(I0 conj(Ij)) < 0: opposite currents.
-		if !(math.Abs(base[pqNet]) < 2*base[pqCurrentI]) {
-			continue
+		if math.Abs(base[pqNet]) < 2*base[pqCurrentI] {
+			out = append(out, resolvedPair(c.sp, j, base, sg))
 		}
-		pe := PairEstimate{Lines: [2]int{0, j},
-			Point: [3]float64{base[pqPointE], base[pqPointN], base[pqPointU]},
-			Dir:   dirOf(base[pqAzimuth]*math.Pi/180, base[pqDip]*math.Pi/180),
-			Depth: base[pqDepth], DepthSigma: sg[pqDepth],
-			Offset: base[pqOffset], OffsetSigma: sg[pqOffset],
-			Azimuth: base[pqAzimuth], Moment: base[pqMoment], MomentSigma: sg[pqMoment],
-			NetCurrent: base[pqNet], NetCurrentSigma: sg[pqNet],
-			Spacing: base[pqSpacing], SpacingSigma: sg[pqSpacing],
-		}
-		if ac {
-			pe.NetCurrentPhase, pe.NetCurrentPhaseSigma = base[pqNetPhase], sg[pqNetPhase]
-		}
-		if !sp.geom[0].holdAz && !sp.geom[j].holdAz {
-			pe.AzimuthSigma = sg[pqAzimuth]
-		}
-		out = append(out, pe)
-	}
+	})
 	sort.SliceStable(out, func(a, b int) bool { return out[a].Spacing < out[b].Spacing })
 	return out
+}
+
+// linesBeside calls visit for each line j of the summarised candidate c that runs
+// within maxAngle degrees of its strongest line, when that line may be paired
+// (strongestLinePairable), with the quantities of the two as a pair (derivePair,
+// folded) and their sigmas.
+func (f *fitter) linesBeside(c *candidate, su *summary, maxAngle float64, visit func(j int, base, sg []float64)) {
+	if !strongestLinePairable(su) {
+		return
+	}
+	for j := 1; j < len(su.lines); j++ {
+		b := &su.lines[j]
+		if b.Kind != "line" || !(math.Abs(math.Remainder(su.lines[0].Azimuth-b.Azimuth, 180)) <= maxAngle) {
+			continue
+		}
+		base, sg := f.pairQuantities(c.sp, su, 0, j)
+		foldPair(base, c.sp.nrhs == 2)
+		visit(j, base, sg)
+	}
 }
 
 // sameWayMaxAngle is the largest angle between two lines, degrees, for them to be
@@ -974,57 +961,21 @@ const sameWaySplit = 0.5
 // 0.21 A for the 2 A cable, and the route, following the stronger line alone,
 // read a current 0.7 A low there ("below both neighbours", or a step).
 func (f *fitter) sameWayOf(c *candidate, su *summary) []PairEstimate {
-	if len(su.lines) < 2 || su.lines[0].Kind != "line" {
-		return nil
-	}
-	for _, pe := range su.pairs {
-		if pe.Lines[0] == 0 || pe.Lines[1] == 0 {
-			return nil
-		}
-	}
-	sp := c.sp
-	ac := sp.nrhs == 2
 	var best *PairEstimate
-	for j := 1; j < len(su.lines); j++ {
+	f.linesBeside(c, su, sameWayMaxAngle, func(j int, base, sg []float64) {
 		a, b := &su.lines[0], &su.lines[j]
-		if b.Kind != "line" || !(math.Abs(math.Remainder(a.Azimuth-b.Azimuth, 180)) <= sameWayMaxAngle) {
-			continue
-		}
-		if !(a.CurrentSigma > 0) || !(b.CurrentSigma > 0) {
-			continue
-		}
-		base, sg := f.pairQuantities(sp, su, 0, j)
-		foldPair(base, ac)
+		switch {
+		case !(a.CurrentSigma > 0) || !(b.CurrentSigma > 0):
 		// |I0 + Ij| > |I0 - Ij| when Re(I0 conj(Ij)) > 0: the same way.
-		if !(math.Abs(base[pqNet]) > 2*base[pqCurrentI]) {
-			continue
+		case !(math.Abs(base[pqNet]) > 2*base[pqCurrentI]):
+		case !(base[pqSpacing] < math.Max(a.Depth, b.Depth)):
+		case !(sg[pqNet] < sameWaySplit*math.Min(a.CurrentSigma, b.CurrentSigma)):
+		case best != nil && best.Spacing <= base[pqSpacing]:
+		default:
+			pe := resolvedPair(c.sp, j, base, sg)
+			best = &pe
 		}
-		if !(base[pqSpacing] < math.Max(a.Depth, b.Depth)) {
-			continue
-		}
-		if !(sg[pqNet] < sameWaySplit*math.Min(a.CurrentSigma, b.CurrentSigma)) {
-			continue
-		}
-		if best != nil && best.Spacing <= base[pqSpacing] {
-			continue
-		}
-		pe := PairEstimate{Lines: [2]int{0, j},
-			Point: [3]float64{base[pqPointE], base[pqPointN], base[pqPointU]},
-			Dir:   dirOf(base[pqAzimuth]*math.Pi/180, base[pqDip]*math.Pi/180),
-			Depth: base[pqDepth], DepthSigma: sg[pqDepth],
-			Offset: base[pqOffset], OffsetSigma: sg[pqOffset],
-			Azimuth: base[pqAzimuth], Moment: base[pqMoment], MomentSigma: sg[pqMoment],
-			NetCurrent: base[pqNet], NetCurrentSigma: sg[pqNet],
-			Spacing: base[pqSpacing], SpacingSigma: sg[pqSpacing],
-		}
-		if ac {
-			pe.NetCurrentPhase, pe.NetCurrentPhaseSigma = base[pqNetPhase], sg[pqNetPhase]
-		}
-		if !sp.geom[0].holdAz && !sp.geom[j].holdAz {
-			pe.AzimuthSigma = sg[pqAzimuth]
-		}
-		best = &pe
-	}
+	})
 	if best == nil {
 		return nil
 	}
@@ -1042,9 +993,53 @@ func sameWayNote(su *summary, pe PairEstimate, ac bool) string {
 	if ac {
 		unit = "A RMS"
 	}
-	return fmt.Sprintf("%s: lines %d and %d, %.2g m apart and nearer each other than their depth, carry %.3g ± %.2g and %.3g ± %.2g %s; their sum, %.4g ± %.2g %s, is the current of one conductor that bends under the readings or of cables laid together",
+	return fmt.Sprintf("%s: lines %d and %d, %.2g m apart and nearer each other than their depth, carry %.3g ± %.2g and %.3g ± %.2g %s; their sum, %.4g ± %.2g %s, is known far better than either (one conductor bending under the readings, or cables laid together)",
 		SameWayNote, pe.Lines[0]+1, pe.Lines[1]+1, pe.Spacing, math.Abs(a.Current), a.CurrentSigma, math.Abs(b.Current), b.CurrentSigma, unit,
 		math.Abs(pe.NetCurrent), pe.NetCurrentSigma, unit)
+}
+
+// strongestLinePairable reports whether the strongest line of su may be paired
+// with another line it resolved: it is a line, there is another source, and no
+// unresolved pair holds it.
+func strongestLinePairable(su *summary) bool {
+	if len(su.lines) < 2 || su.lines[0].Kind != "line" {
+		return false
+	}
+	for _, pe := range su.pairs {
+		if pe.Lines[0] == 0 || pe.Lines[1] == 0 {
+			return false
+		}
+	}
+	return true
+}
+
+// resolvedPair describes lines 0 and j of sp as a pair from the quantities of
+// derivePair (folded) and their sigmas, with the spacing (opposedOf, sameWayOf).
+func resolvedPair(sp *separable, j int, base, sg []float64) PairEstimate {
+	pe := pairEstimate(sp, 0, j, base, sg)
+	pe.Spacing, pe.SpacingSigma = base[pqSpacing], sg[pqSpacing]
+	return pe
+}
+
+// pairEstimate describes lines i and j of sp as a pair from the quantities of
+// derivePair (folded) and their sigmas, without the spacing; the azimuth's sigma
+// is left 0 when either line's azimuth is held.
+func pairEstimate(sp *separable, i, j int, base, sg []float64) PairEstimate {
+	pe := PairEstimate{Lines: [2]int{i, j},
+		Point: [3]float64{base[pqPointE], base[pqPointN], base[pqPointU]},
+		Dir:   dirOf(base[pqAzimuth]*math.Pi/180, base[pqDip]*math.Pi/180),
+		Depth: base[pqDepth], DepthSigma: sg[pqDepth],
+		Offset: base[pqOffset], OffsetSigma: sg[pqOffset],
+		Azimuth: base[pqAzimuth], Moment: base[pqMoment], MomentSigma: sg[pqMoment],
+		NetCurrent: base[pqNet], NetCurrentSigma: sg[pqNet],
+	}
+	if sp.nrhs == 2 {
+		pe.NetCurrentPhase, pe.NetCurrentPhaseSigma = base[pqNetPhase], sg[pqNetPhase]
+	}
+	if !sp.geom[i].holdAz && !sp.geom[j].holdAz {
+		pe.AzimuthSigma = sg[pqAzimuth]
+	}
+	return pe
 }
 
 // Indices of the quantities derivePair reports.
@@ -1217,20 +1212,7 @@ func (f *fitter) pairOf(c *candidate, su *summary, i, j int) (PairEstimate, bool
 		}
 		sg = s2
 	}
-	pe := PairEstimate{Lines: [2]int{i, j},
-		Point: [3]float64{base[pqPointE], base[pqPointN], base[pqPointU]},
-		Dir:   dirOf(base[pqAzimuth]*math.Pi/180, base[pqDip]*math.Pi/180),
-		Depth: base[pqDepth], DepthSigma: sg[pqDepth],
-		Offset: base[pqOffset], OffsetSigma: sg[pqOffset],
-		Azimuth: base[pqAzimuth], Moment: base[pqMoment], MomentSigma: sg[pqMoment],
-		NetCurrent: base[pqNet], NetCurrentSigma: sg[pqNet],
-	}
-	if sp.nrhs == 2 {
-		pe.NetCurrentPhase, pe.NetCurrentPhaseSigma = base[pqNetPhase], sg[pqNetPhase]
-	}
-	if !sp.geom[i].holdAz && !sp.geom[j].holdAz {
-		pe.AzimuthSigma = sg[pqAzimuth]
-	}
+	pe := pairEstimate(sp, i, j, base, sg)
 	if !(pe.Moment > k*pe.MomentSigma) || !(pe.DepthSigma > 0) || !(pe.OffsetSigma > 0) ||
 		!(pe.DepthSigma < 0.5*pe.Depth) || !(pe.OffsetSigma < 0.5*pe.Depth) {
 		return PairEstimate{}, false
