@@ -280,8 +280,12 @@ func (f *fitter) run() (*Result, error) {
 					scores = rescore(scores, rs.sc)
 				}
 				if gain := bestScore - crit; gain > pairGain && !f.atNoise(best.sp, best.rss) {
-					unresolved = fmt.Sprintf("%s: %d lines lower the criterion by %.3g (%s), but not every current is resolved; the readings depart from the %d line(s) reported by more than their noise",
-						UnresolvedLinesNote, k, gain, sc.Rejected, k-1)
+					// The count reported is worded below, once the fit
+					// kept is known: a count passed over for its angles
+					// had been counted as reported (the note read "the
+					// 2 line(s) reported" over a fit of one line).
+					unresolved = fmt.Sprintf("%s: %d lines lower the criterion by %.3g (%s), but not every current is resolved; the readings depart from the",
+						UnresolvedLinesNote, k, gain, sc.Rejected)
 				}
 			}
 			break
@@ -303,7 +307,8 @@ func (f *fitter) run() (*Result, error) {
 	}
 	res, err := f.report(best, scores)
 	if err == nil && unresolved != "" {
-		res.Notes = append(res.Notes, unresolved)
+		n := len(best.sp.geom)
+		res.Notes = append(res.Notes, fmt.Sprintf("%s %d %s reported by more than their noise", unresolved, n, map[bool]string{true: "line", false: "lines"}[n == 1]))
 	}
 	return res, err
 }

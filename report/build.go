@@ -293,6 +293,7 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 	if w := sharedMisfit(fits, &bs, rs); w != "" {
 		d.Warnings = append([]string{w}, d.Warnings...)
 	}
+	markLoneMisfits(d.Groups, fits, &bs, rs)
 	d.UncertaintyNote = SigmaNote
 	aloneFindings(fits, r)
 	d.SetRoute(r)
@@ -336,19 +337,71 @@ func sharedMisfit(fits []Fit, bs *BuildSettings, rs *route.Settings) string {
 	if bs.Noise > 0 {
 		return ""
 	}
+	n, misses := measuredMisfits(fits, bs, rs)
+	bad := len(misses)
+	// A third of the groups or more: at half, the median of the groups'
+	// own noise estimates, the poor-fit yardstick, lies between the two
+	// kinds, and the misfits passed as sound (three of six traverses over
+	// three cables of one circuit, 600 nT against 0.7 nT). Without that
+	// yardstick (the route's check off: fewer than three groups) one is
+	// enough: a lone traverse fitted with the wrong model (one line over
+	// a go-and-return pair, half its depth and a tenth of its current)
+	// was "1 sound", with no word.
+	least := 2
+	if rs.MaxReducedChi2 < 0 {
+		least = 1
+	}
+	if n < least || bad < least || 3*bad < n {
+		return ""
+	}
+	var rms, frac, noise []float64
+	var keys []string
+	for _, m := range misses {
+		keys = append(keys, m.key)
+		rms = append(rms, m.rms)
+		noise = append(noise, m.noise)
+		frac = append(frac, m.frac)
+	}
+	m, nm := median(rms), median(noise)
+	which := ""
+	if bad < n {
+		which = " (" + strings.Join(keys[:min(len(keys), 8)], ", ")
+		if len(keys) > 8 {
+			which += ", ..."
+		}
+		which += ")"
+	}
+	lead := fmt.Sprintf("%d of %d groups' fits%s miss the readings by %.3g nT RMS per component (median)", bad, n, which, m)
+	if n == 1 {
+		lead = fmt.Sprintf("the group's fit misses the readings by %.3g nT RMS per component", m)
+	}
+	return fmt.Sprintf("%s, %.3g times the %.3g nT noise the readings themselves show and %.2g%% of the signal: the fitted lines do not describe this field (conductors closer together than the fit can part, such as the two cores of a pair, parallel circuits, or an object), so positions, depths and currents may be wrong although the fits, measured against one another, may pass as sound; confirm on site by other means",
+		lead, m/nm, nm, 100*median(frac))
+}
+
+// misfit is a group's fit that misses the noise measured apart from it
+// (measuredMisfits): its RMS residual per real component, that noise, nT,
+// and the residual's share of the signal.
+type misfit struct {
+	key              string
+	rms, noise, frac float64
+}
+
+// measuredMisfits returns the number of groups whose noise was measured
+// apart from their fits and those of them whose fits miss the readings by
+// more than the square root of the poor-fit limit times that noise and by
+// more than a share of the signal (see sharedMisfit).
+func measuredMisfits(fits []Fit, bs *BuildSettings, rs *route.Settings) (n int, misses []misfit) {
 	limit := rs.MaxReducedChi2
 	if limit <= 0 {
 		// Also when the route's own check is off (no reference noise
-		// with fewer than three groups): this warning has its own.
+		// with fewer than three groups): this check has its own.
 		limit = 4
 	}
 	minor := rs.MinorMisfit
 	if minor == 0 {
 		minor = 0.01
 	}
-	var n, bad int
-	var rms, frac, noise []float64
-	var keys []string
 	for _, f := range fits {
 		res := f.Result
 		if res == nil || len(res.Sources) == 0 || res.RMS <= 0 {
@@ -373,31 +426,37 @@ func sharedMisfit(fits []Fit, bs *BuildSettings, rs *route.Settings) string {
 			share = math.Max(minor, dcMisfitShare)
 		}
 		if r > math.Sqrt(limit)*measured && sig > 0 && res.RMS > share*sig {
-			bad++
-			keys = append(keys, f.Key)
-			rms = append(rms, r)
-			noise = append(noise, measured)
-			frac = append(frac, res.RMS/sig)
+			misses = append(misses, misfit{key: f.Key, rms: r, noise: measured, frac: res.RMS / sig})
 		}
 	}
-	// A third of the groups or more: at half, the median of the groups'
-	// own noise estimates, the poor-fit yardstick, lies between the two
-	// kinds, and the misfits passed as sound (three of six traverses over
-	// three cables of one circuit, 600 nT against 0.7 nT).
-	if n < 2 || bad < 2 || 3*bad < n {
-		return ""
+	return n, misses
+}
+
+// markLoneMisfits gives the groups whose fits miss the noise measured
+// apart from them (measuredMisfits) the reason as their Problem, when the
+// route's own poor-fit check is off (fewer than three groups, the noise
+// not given): then nothing else can call them poor, and a single traverse
+// fitted with the wrong model was counted sound.
+func markLoneMisfits(groups []Group, fits []Fit, bs *BuildSettings, rs *route.Settings) {
+	if bs.Noise > 0 || rs.MaxReducedChi2 >= 0 {
+		return
 	}
-	m, nm := median(rms), median(noise)
-	which := ""
-	if bad < n {
-		which = " (" + strings.Join(keys[:min(len(keys), 8)], ", ")
-		if len(keys) > 8 {
-			which += ", ..."
+	_, misses := measuredMisfits(fits, bs, rs)
+	for _, m := range misses {
+		for i := range groups {
+			g := &groups[i]
+			if g.Key != m.key || !g.OK {
+				continue
+			}
+			why := fmt.Sprintf("the fit misses the readings by %.3g nT RMS per component, %.3g times the %.3g nT noise the readings themselves show and %.2g%% of the signal: the fitted lines do not describe this field",
+				m.rms, m.rms/m.noise, m.noise, 100*m.frac)
+			if g.Problem != "" {
+				g.Problem += "; "
+			}
+			g.Problem += why
+			break
 		}
-		which += ")"
 	}
-	return fmt.Sprintf("%d of %d groups' fits%s miss the readings by %.3g nT RMS per component (median), %.3g times the %.3g nT noise the readings themselves show and %.2g%% of the signal: the fitted lines do not describe this field (conductors closer together than the fit can part, such as the two cores of a pair, parallel circuits, or an object), so positions, depths and currents may be wrong although the fits, measured against one another, may pass as sound; confirm on site by other means",
-		bad, n, which, m, m/nm, nm, 100*median(frac))
 }
 
 // dcMisfitShare is the least share of a DC fit's signal its misfit must

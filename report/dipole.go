@@ -33,7 +33,11 @@ import (
 //   - the refitted conductor then agrees with its neighbours: its current
 //     lies within dipoleAgreeK standard deviations of the mean of the
 //     nearest usable groups either side (their half-difference counted as
-//     scatter), and
+//     scatter, and the route's between-station scatter, at least
+//     dipoleAgreeShare of their current: in review an object 4.1 m beside
+//     a straight 42 A cable was found and then dropped for a refitted
+//     current 0.015% off its neighbours', which read the tail of its
+//     field), and
 //   - the dipole lies off the conductor, farther from it horizontally than
 //     its own depth below the sensors' reference times dipoleOffLine: an
 //     object right on the line cannot be told from a bend or a change of
@@ -115,16 +119,19 @@ import (
 // reported on that track; the group keeps its place on the route with the
 // refitted conductors.
 const (
-	weakShare     = 0.05
-	dipoleMargin  = 2.0 // m
-	dipoleDeep    = 3.0 // m
-	dipoleGrid    = 1.0 // m
-	dipoleStarts  = 4
-	dipoleRounds  = 4
-	dipoleBIC     = 10
-	dipoleAgreeK  = 3
-	dipoleOffLine = 1.0
-	splitRounds   = 30
+	weakShare    = 0.05
+	dipoleMargin = 2.0 // m
+	dipoleDeep   = 3.0 // m
+	dipoleGrid   = 1.0 // m
+	dipoleStarts = 4
+	dipoleRounds = 4
+	dipoleBIC    = 10
+	dipoleAgreeK = 3
+	// dipoleAgreeShare is the least between-station scatter agrees
+	// allows, a share of the neighbours' current (see agrees).
+	dipoleAgreeShare = 1e-3
+	dipoleOffLine    = 1.0
+	splitRounds      = 30
 )
 
 // bic is the Bayesian information criterion of a fit as inverse computes
@@ -425,8 +432,11 @@ func agrees(r *route.Route, key string, skip map[string]bool, current, sigma flo
 		v += (cur[0] - cur[1]) * (cur[0] - cur[1]) / 4
 	}
 	// The route's between-station scatter, in the refitted current and in
-	// the neighbours' mean.
-	v += r.ModelScatter * r.ModelScatter * (1 + 1/float64(len(cur)))
+	// the neighbours' mean, and at least dipoleAgreeShare of that mean:
+	// the neighbours read the tail of the object's field, which their
+	// fits take into their currents.
+	tau := math.Max(r.ModelScatter, dipoleAgreeShare*mean)
+	v += tau * tau * (1 + 1/float64(len(cur)))
 	return math.Abs(math.Abs(current)-mean) <= dipoleAgreeK*math.Hypot(sigma, math.Sqrt(v))
 }
 
@@ -1221,9 +1231,10 @@ func searchFrom(f *Fit, from []*inverse.SourceEstimate, at *[3]float64) *dipoleS
 	// traverse, not white: the sigmas take the residuals' lag-1
 	// autocorrelation (see residualAR1 and jointFit.uncertainty).
 	var sig, momAxisSigma [3]float64
-	var momSigma float64
+	var momSigma, curSigma float64
 	if jf := newJointFit(loc, pos); jf != nil {
 		sig, momSigma, momAxisSigma = jf.uncertainty(rss, s2, residualAR1(r), r, len(lines))
+		curSigma = jf.currentSigma
 	}
 	zref := res.ReferenceZ
 	if res.DepthReference != "ReferenceZ" {
@@ -1247,8 +1258,10 @@ func searchFrom(f *Fit, from []*inverse.SourceEstimate, at *[3]float64) *dipoleS
 		Identifiable: inverse.Identifiable{Depth: sig[2] > 0, Offset: sig[0] > 0},
 		Notes:        []string{"point dipole: a magnetised (ferrous) object, not a current; position and moment sigmas with the conductors' geometry free"}}
 	// The strongest conductor's current solved jointly with the moment at
-	// the final position; its sigma from the conductors' own fit, which
-	// includes their geometry.
+	// the final position; its sigma the largest of the conductors' own
+	// fit's (their geometry free), the joint linear fit's and the joint
+	// fit's with the object's position and the conductors' geometry free
+	// (jointFit.uncertainty).
 	ds.current, ds.currentSigma = math.Abs(lr.Sources[0].Current), lr.Sources[0].CurrentSigma
 	if len(r.Strengths) > 0 {
 		ds.current = math.Abs(r.Strengths[0])
@@ -1256,6 +1269,7 @@ func searchFrom(f *Fit, from []*inverse.SourceEstimate, at *[3]float64) *dipoleS
 		ds.current = cmplx.Abs(r.StrengthPhasors[0])
 	}
 	ds.currentSigma = math.Max(ds.currentSigma, r.StrengthSigmas[0])
+	ds.currentSigma = math.Max(ds.currentSigma, curSigma)
 
 	// The conductors' result, its predictions and residuals with the
 	// object's field added back.
@@ -1388,6 +1402,10 @@ type jointFit struct {
 	lines []inverse.Line
 	step  []float64 // finite-difference steps: 5 cm for the dipole, 1 cm and 2 mrad for the lines
 	steps int       // the steps settle took
+	// currentSigma is the one-sigma uncertainty of the first line's
+	// current (its magnitude) that uncertainty found, the dipole's
+	// position and the lines' geometry free; 0 when it found none.
+	currentSigma float64
 }
 
 // newJointFit returns the joint model about pos and the lines loc holds, or
@@ -1723,6 +1741,13 @@ func (j *jointFit) uncertainty(rss0, s2, rho float64, r *inverse.Result, at int)
 		return pos, 0, axis
 	}
 	// The moment's magnitude, and the profiled residuals as series.
+	// The first line's current (magnitude), when there are lines.
+	cur := func(r *inverse.Result) float64 {
+		if p.Phasors != nil {
+			return cmplx.Abs(r.StrengthPhasors[0])
+		}
+		return math.Abs(r.Strengths[0])
+	}
 	mag := func(r *inverse.Result) (m float64, re, im [3]float64) {
 		for c := range 3 {
 			if p.Phasors != nil {
@@ -1756,6 +1781,7 @@ func (j *jointFit) uncertainty(rss0, s2, rho float64, r *inverse.Result, at int)
 	ep, em := make([]float64, nser*n), make([]float64, nser*n)
 	x := make([]float64, np)
 	dm := make([]float64, np)
+	dc := make([]float64, np) // d|current|/dtheta, when at > 0
 	// The same for each axis's moment (for AC its signed part in phase
 	// with the reference phase, acMoment).
 	var dma [3][]float64
@@ -1763,7 +1789,7 @@ func (j *jointFit) uncertainty(rss0, s2, rho float64, r *inverse.Result, at int)
 		dma[c] = make([]float64, np)
 	}
 	for a := range np {
-		var mm [2]float64
+		var mm, mc [2]float64
 		var ma [2][3]float64
 		for k, sgn := range []float64{1, -1} {
 			clear(x)
@@ -1774,12 +1800,16 @@ func (j *jointFit) uncertainty(rss0, s2, rho float64, r *inverse.Result, at int)
 				return [3]float64{}, 0, axis
 			}
 			mm[k], ma[k], _ = mag(rr)
+			if at > 0 {
+				mc[k] = cur(rr)
+			}
 			if p.Phasors != nil {
 				ma[k], _ = acMoment(rr, at)
 			}
 			series(rr, [][]float64{ep, em}[k])
 		}
 		dm[a] = (mm[0] - mm[1]) / (2 * j.step[a])
+		dc[a] = (mc[0] - mc[1]) / (2 * j.step[a])
 		for c := range 3 {
 			dma[c][a] = (ma[0][c] - ma[1][c]) / (2 * j.step[a])
 		}
@@ -1829,6 +1859,18 @@ func (j *jointFit) uncertainty(rss0, s2, rho float64, r *inverse.Result, at int)
 		return pos, 0, axis
 	}
 	f := s2 * ar1Factor(rho) / (r.Sigma * r.Sigma)
+	if at > 0 {
+		// The first line's current likewise: its conditional variance
+		// (for AC that of each part, the same for both) and the part
+		// through theta.
+		vc := r.Covariance.At(0, 0) * f
+		for a := range np {
+			for b := range np {
+				vc += dc[a] * C.At(a, b) * dc[b]
+			}
+		}
+		j.currentSigma = math.Sqrt(math.Max(vc, 0))
+	}
 	var v float64
 	for a := range 3 {
 		for b := range 3 {

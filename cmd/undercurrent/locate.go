@@ -405,6 +405,7 @@ type group struct {
 	key     string
 	points  [][3]float64
 	fields  [][3]float64    // DC
+	stamps  []float64       // DC: each reading's time, s (NaN when the log has none)
 	phasors [][3]complex128 // AC
 	res     *inverse.Result // fit
 	err     error           // fit failure
@@ -1185,6 +1186,7 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 			g := get(key)
 			g.points = append(g.points, [3]float64{s.X[i], s.Y[i], s.Z[i]})
 			g.fields = append(g.fields, [3]float64{s.Bx[i], s.By[i], s.Bz[i]})
+			g.stamps = append(g.stamps, s.Time[i])
 		}
 		return nil
 	}
@@ -1444,6 +1446,9 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 	}
 	head.Warnings = append(head.Warnings, leadWarnings(alerts, sv.warnings)...)
 	if w := travelWarning(sv); w != "" {
+		head.Warnings = append(head.Warnings, w)
+	}
+	if w := driftWarning(o, sv); w != "" {
 		head.Warnings = append(head.Warnings, w)
 	}
 	if w := wanderWarning(sv); w != "" {
