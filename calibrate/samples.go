@@ -83,6 +83,9 @@ func BaseCorrect(rover, base *ingest.Samples, set *BaseSettings) (*BaseReport, e
 	if err == nil && base.Meta["horizontal_frame"] == ingest.IAGABaselineNoDECBAS {
 		rep.Warnings = append(rep.Warnings, fmt.Sprintf("base record %s holds observatory variation data in the baseline frame and its header gives no baseline declination (DECBAS): its east and north departures are turned from geographic axes by that declination", source(base)))
 	}
+	if err == nil && base.Meta["horizontal_frame"] == ingest.IAGAHENotTurned {
+		rep.Warnings = append(rep.Warnings, fmt.Sprintf("base record %s holds observatory data in H E Z, which are not turned to geographic north (only variation data are, by DECBAS): its east and north departures are those along E and H, turned from geographic axes by the angle of the observatory's H axis", source(base)))
+	}
 	return rep, err
 }
 

@@ -85,7 +85,11 @@
 // north = H or H cos D; IAGABaselineKept), as does a variation file whose
 // header gives no DECBAS (IAGABaselineNoDECBAS, which base-station
 // correction warns about). Data of other types (definitive, adjusted) are
-// taken as absolute and never turned.
+// taken as absolute and never turned: H D Z then gives geographic east and
+// north, but H E Z gives E and H, the observatory's own horizontal axes,
+// which are not the geographic X and Y; such data are marked
+// IAGAHENotTurned, with a warning (base-station correction warns too),
+// unless the baseline frame is kept (IAGABaselineKept).
 // UVW is left in the instrument's axes and marked FrameSensor.
 //
 // # Missing values

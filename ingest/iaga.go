@@ -23,6 +23,11 @@ const (
 	IAGAGeographic       = "geographic (turned by DECBAS)"
 	IAGABaselineKept     = "observatory baseline (kept)"
 	IAGABaselineNoDECBAS = "observatory baseline (no DECBAS in the header)"
+	// IAGAHENotTurned marks H E Z data of a type other than variation
+	// (adjusted, definitive, or none stated), which are not turned: east
+	// and north are E and H, not the X and Y that IAGA-2002 gives for
+	// geographic north and east.
+	IAGAHENotTurned = "observatory H E axes (not turned: only variation data are)"
 )
 
 // IAGA-2002 markers for values that are absent (INTERMAGNET technical
@@ -221,6 +226,16 @@ func newIAGAReader(name string, rd io.Reader, cfg *config) (*iagaReader, error) 
 		meta[MetaPrefix+"horizontal_frame"] = IAGABaselineNoDECBAS
 	}
 	noDECBAS := variation && decbasLine == 0 && !cfg.keepBaseline
+	// H E Z data of another type are read with E as east and H as north,
+	// DECBAS or not: H and E are not the geographic X and Y.
+	heNotTurned := set == "HEZ" && !variation
+	switch {
+	case heNotTurned && cfg.keepBaseline:
+		meta[MetaPrefix+"horizontal_frame"] = IAGABaselineKept
+		heNotTurned = false
+	case heNotTurned:
+		meta[MetaPrefix+"horizontal_frame"] = IAGAHENotTurned
+	}
 	if variation && decbasLine > 0 && !cfg.keepBaseline {
 		v, err := strconv.ParseFloat(decbasText, 64)
 		if err != nil || !(v >= 0 && v <= 216000) {
@@ -275,6 +290,13 @@ func newIAGAReader(name string, rd io.Reader, cfg *config) (*iagaReader, error) 
 	}
 	if noDECBAS {
 		pl.warn("%s: IAGA-2002 variation data in %s without a DECBAS comment in the header: east and north are those of the observatory's baseline frame (H along the baseline declination), not geographic; give the header its \"# DECBAS\" line to turn them", name, strings.Join(strings.Split(set, ""), " "))
+	}
+	if heNotTurned {
+		what := "data"
+		if t := strings.TrimSpace(meta[MetaPrefix+"data_type"]); t != "" {
+			what = strings.ToLower(t) + " data"
+		}
+		pl.warn("%s: IAGA-2002 %s in H E Z: east and north are read as E and H, the observatory's own horizontal axes, not geographic east and north (which IAGA-2002 gives as Y and X); only variation data are turned to geographic north, by the header's \"# DECBAS\" line; keeping the observatory's frame (--iaga-baseline-frame; ingest.WithIAGABaselineFrame) reads them so without this warning", name, what)
 	}
 	r.bsin, r.bcos = math.Sincos(r.baseline)
 	return r, nil

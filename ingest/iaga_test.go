@@ -291,7 +291,8 @@ func TestIAGABaselineRules(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if s.Bx[0] != 100 || s.By[0] != 20000 || s.Meta["horizontal_frame"] != "" {
+	// Not turned, and marked as read in the observatory's H E axes.
+	if s.Bx[0] != 100 || s.By[0] != 20000 || s.Meta["horizontal_frame"] != IAGAHENotTurned {
 		t.Errorf("definitive HEZ turned: %v %v %q", s.Bx[0], s.By[0], s.Meta["horizontal_frame"])
 	}
 	// Variation data without DECBAS stay in the baseline frame, marked so.

@@ -306,7 +306,9 @@ func WithAllowUnterminatedStream(ok bool) Option {
 // H E Z in the observatory's baseline frame. By default, when the header gives
 // the baseline declination (the "# DECBAS" comment, tenths of minutes of arc
 // east), the horizontal components are turned by it to geographic north and
-// east (see the package documentation).
+// east (see the package documentation). H E Z data of another type, which
+// are never turned, are then read without the warning that their east and
+// north are not geographic (IAGAHENotTurned).
 func WithIAGABaselineFrame(keep bool) Option { return func(c *config) { c.keepBaseline = keep } }
 
 // WithDecimalComma says whether CSV numbers write their decimals with a

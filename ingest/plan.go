@@ -390,6 +390,9 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 		}
 	}
 	if len(missing) > 0 {
+		if err := p.unreadUnitColumn(missing, taken, headerLine); err != nil {
+			return nil, err
+		}
 		tried := "none"
 		if len(cfg.mappingText) > 0 {
 			tried = strings.Join(cfg.mappingText, ", ")
@@ -489,6 +492,66 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 	return p, nil
 }
 
+// unreadUnitColumn explains a missing required column (missing: their
+// canonical names) that is in the file under its own name with a unit the
+// name states but this package does not read ("bx [furlong]", "Bx_MT",
+// "bx_nT_x10", "time (local)"): such a column is not taken by its name, and
+// "no column for bx" beside a list of columns showing it said nothing of
+// why. It returns nil when no column not taken (taken: by index) is one.
+func (p *plan) unreadUnitColumn(missing []string, taken map[int]bool, headerLine int) error {
+	for _, m := range missing {
+		c, _ := canonIndex(m)
+		for i, h := range p.header {
+			if taken[i] {
+				continue
+			}
+			name := strings.TrimSpace(h)
+			// "bx_nT_x10" is bx in "nT_x10": try each shorter base.
+			base := name
+			for range 3 {
+				b, u := SplitUnit(base)
+				if u == "" || b == "" {
+					break
+				}
+				base = b
+				bc, _, ok := lookupNameAlias(base)
+				if !ok {
+					continue
+				}
+				if bc != c {
+					break
+				}
+				unit := strings.TrimSpace(name[len(base):])
+				if n := len(unit); n >= 2 && (unit[0] == '(' && unit[n-1] == ')' || unit[0] == '[' && unit[n-1] == ']') {
+					unit = strings.TrimSpace(unit[1 : n-1])
+				} else {
+					unit = strings.TrimLeft(unit, "_ ")
+				}
+				_, err := unitScale(kindOf(c), unit)
+				if err == nil {
+					break // read by its name: not this column
+				}
+				mapping := m + "=" + name
+				return &Error{File: p.file, Line: headerLine, Batch: -1,
+					Msg: fmt.Sprintf("no column for %s: column %q is %s by its name, but the rest of its name is not read as a unit: %v; to read it, map it and give its unit (a column mapping %s and a unit option %s=U; on the command line --column %s --unit %s=U)",
+						strings.Join(missing, ", "), name, m, err, mapping, m, shellQuote(mapping), m)}
+			}
+		}
+	}
+	return nil
+}
+
+// shellQuote quotes s for a POSIX shell when it holds anything but
+// letters, digits and the punctuation of ordinary column names.
+func shellQuote(s string) string {
+	for _, r := range s {
+		if !(unicode.IsLetter(r) || unicode.IsDigit(r) || strings.ContainsRune("=_-.,:/+", r)) {
+			return "'" + strings.ReplaceAll(s, "'", `'\''`) + "'"
+		}
+	}
+	return s
+}
+
 // unknownNameUnit refuses a field column mapped by name (c) whose name
 // states a unit that is not read: a known unit in another case or with
 // another prefix ("Bx_MT": mT or megatesla?, "Bx (fT)", "Bx [kG]"), a
@@ -518,8 +581,8 @@ func (p *plan) unknownNameUnit(c, headerLine int) error {
 		return nil
 	}
 	return &Error{File: p.file, Line: headerLine, Batch: -1, Column: name,
-		Msg: fmt.Sprintf("its name (mapped to %s) states the unit %q, which is not a field unit read here (nT or nanotesla or gamma, pT, uT, mT, T, G or gauss, mG or milligauss, Oe): read as nT by default, its values would be off by that unit's factor; give the column's unit with a unit option %s=U (on the command line --unit %s=U), or name the unit in the column's name as %s_uT does",
-			canonNames[c], u, canonNames[c], canonNames[c], canonNames[c])}
+		Msg: fmt.Sprintf("its name (mapped to %s) states the unit %q, which is not a field unit read here (%s): read as nT by default, its values would be off by that unit's factor; give the column's unit with a unit option %s=U (on the command line --unit %s=U), or name the unit in the column's name as %s_uT does",
+			canonNames[c], u, FieldUnits, canonNames[c], canonNames[c], canonNames[c])}
 }
 
 // unitLikeWord reports whether a word looks like a unit of magnetic field

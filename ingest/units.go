@@ -2,8 +2,86 @@ package ingest
 
 import (
 	"fmt"
+	"slices"
 	"strings"
 )
+
+// fieldUnit is one field unit: its symbols, matched exactly, the names
+// written out, matched in any case, and its size in nT.
+type fieldUnit struct {
+	symbols, names []string
+	nT             float64
+}
+
+// fieldUnitTable lists every field unit read, the one source of the units
+// unitScale accepts and of FieldUnits, which lists them in messages.
+var fieldUnitTable = []fieldUnit{
+	// The SI units, and the gamma, the name of 1 nT long used in
+	// geophysics and still in survey logs (1 γ = 1 nT = 1e-9 T, BIPM,
+	// SI Brochure, 8th ed., 2006, Table 10).
+	{[]string{"nT", "nt", "NT"}, []string{"nanotesla", "nanoteslas", "gamma", "gammas"}, 1},
+	{[]string{"pT", "pt"}, []string{"picotesla", "picoteslas"}, 1e-3},
+	{[]string{"uT", "µT", "μT", "ut", "UT"}, []string{"microtesla", "microteslas"}, 1e3},
+	{[]string{"mT", "mt"}, []string{"millitesla", "milliteslas"}, 1e6},
+	{[]string{"T", "t"}, []string{"tesla", "teslas"}, 1e9},
+	// The CGS units (gauss, 1 G = 1e-4 T, SI Brochure, 8th ed., Table 9;
+	// the milligauss 1 mG = 100 nT).
+	{[]string{"G", "g"}, []string{"gauss"}, 1e5},
+	{[]string{"mG", "mg"}, []string{"mgauss", "milligauss"}, 1e2},
+	// The oersted is the CGS unit of H, 1 Oe = 1000/(4π) A/m (BIPM, SI
+	// Brochure, 8th ed., 2006, Table 9), and a field written in Oe is B =
+	// µ0 H in free space (air): µ0 = 4π·10⁻⁷ N/A² (to 1e-9 since the 2019
+	// SI, CODATA 2018) gives 10⁻⁴ T = 1 G = 1e5 nT per oersted.
+	{[]string{"Oe", "oe"}, []string{"oersted"}, 1e5},
+}
+
+// fieldUnitScale returns the size in nT of the field unit s (trimmed).
+func fieldUnitScale(s string) (float64, bool) {
+	for _, f := range fieldUnitTable {
+		for _, sym := range f.symbols {
+			if s == sym {
+				return f.nT, true
+			}
+		}
+		for _, n := range f.names {
+			if strings.EqualFold(s, n) {
+				return f.nT, true
+			}
+		}
+	}
+	return 0, false
+}
+
+// FieldUnits lists the field units read, for messages and help texts:
+// each unit's symbol, with its other spellings in brackets ("nT
+// (nanotesla, gamma)"), in any case for the names written out; a
+// plural ("gammas") is read too.
+var FieldUnits = fieldUnitList()
+
+func fieldUnitList() string {
+	var parts []string
+	for _, f := range fieldUnitTable {
+		p := f.symbols[0]
+		var other []string
+		for _, sym := range f.symbols[1:] {
+			// Other cases of the symbol go without saying, and so does
+			// μT with the Greek mu beside µT with the micro sign.
+			if !strings.EqualFold(sym, f.symbols[0]) && !strings.ContainsRune(sym, 'μ') {
+				other = append(other, sym)
+			}
+		}
+		for _, n := range f.names {
+			if !slices.Contains(f.names, strings.TrimSuffix(n, "s")) || !strings.HasSuffix(n, "s") {
+				other = append(other, n)
+			}
+		}
+		if len(other) > 0 {
+			p += " (" + strings.Join(other, ", ") + ")"
+		}
+		parts = append(parts, p)
+	}
+	return strings.Join(parts[:len(parts)-1], ", ") + " or " + parts[len(parts)-1]
+}
 
 // unitScale returns the factor that turns a value in unit u into the
 // canonical unit of the quantity kind k.
@@ -11,53 +89,10 @@ func unitScale(k kind, u string) (float64, error) {
 	s := strings.TrimSpace(u)
 	switch k {
 	case kindField:
-		switch s {
-		case "nT", "nt", "NT":
-			return 1, nil
-		case "pT", "pt":
-			return 1e-3, nil
-		case "uT", "µT", "μT", "ut", "UT":
-			return 1e3, nil
-		case "mT", "mt":
-			return 1e6, nil
-		case "T", "t":
-			return 1e9, nil
-		case "G", "g":
-			return 1e5, nil
-		case "mG", "mg":
-			return 1e2, nil
-		case "Oe", "oe":
-			// The oersted is the CGS unit of H, 1 Oe = 1000/(4π) A/m
-			// (BIPM, SI Brochure, 8th ed., 2006, Table 9), and a field
-			// written in Oe is B = µ0 H in free space (air): µ0 =
-			// 4π·10⁻⁷ N/A² (to 1e-9 since the 2019 SI, CODATA 2018)
-			// gives 10⁻⁴ T = 1 G = 1e5 nT per oersted.
-			return 1e5, nil
+		if f, ok := fieldUnitScale(s); ok {
+			return f, nil
 		}
-		// The CGS names written out (gauss, 1 G = 1e-4 T, SI Brochure,
-		// 8th ed., Table 9; the milligauss 1 mG = 100 nT).
-		switch strings.ToLower(s) {
-		case "gauss":
-			return 1e5, nil
-		case "mgauss", "milligauss":
-			return 1e2, nil
-		case "oersted":
-			return 1e5, nil
-		// The SI names written out, and the gamma, the name of 1 nT
-		// long used in geophysics and still in survey logs (1 γ = 1 nT
-		// = 1e-9 T, BIPM, SI Brochure, 8th ed., 2006, Table 10).
-		case "nanotesla", "nanoteslas", "gamma", "gammas":
-			return 1, nil
-		case "picotesla", "picoteslas":
-			return 1e-3, nil
-		case "microtesla", "microteslas":
-			return 1e3, nil
-		case "millitesla", "milliteslas":
-			return 1e6, nil
-		case "tesla", "teslas":
-			return 1e9, nil
-		}
-		return 0, fmt.Errorf("unknown field unit %q (want nT, pT, uT, mT, T, G or mG)", u)
+		return 0, fmt.Errorf("unknown field unit %q (want %s)", u, FieldUnits)
 	case kindLength:
 		switch strings.ToLower(s) {
 		case "m", "metre", "metres", "meter", "meters":

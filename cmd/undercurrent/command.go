@@ -125,7 +125,8 @@ const exitHelp = `Exit status: 0 on success; 1 on failure (input that cannot be 
 used, a write that fails); 2 on a usage error: a bad flag, flag value or
 argument, including an output location that cannot be used (an output
 file's directory that does not exist, -o DIR naming a file or a directory
-holding files undercurrent did not write), found before any work is done.`
+holding files undercurrent did not write, an existing file that simulate or
+convert would replace without --force), found before any work is done.`
 
 func sortedCommands() []*command {
 	list := make([]*command, 0, len(commands))

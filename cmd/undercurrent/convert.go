@@ -15,7 +15,7 @@ import (
 
 func init() {
 	var rf readFlags
-	var strict bool
+	var strict, force bool
 	register(&command{
 		name:    "convert",
 		usage:   "[flags] IN OUT",
@@ -31,7 +31,10 @@ frame, the WGS84 origin and header fields; times are Unix seconds, whose
 float64 steps are 2^-22 s (0.24 µs) from 2004 to 2038, so finer time
 stamps (RFC 3339 or Arrow timestamps in ns) round by up to 0.12 µs. OUT is
 written under a temporary name and renamed, so a failure leaves nothing
-half-written. Missing values (NaN) are carried over unless --strict
+half-written. An OUT that exists (and is not empty) is refused before any
+work unless --force is given, so that IN and OUT given the wrong way round
+(convert survey.parquet survey.csv, meaning the other way) cannot replace
+a log. Missing values (NaN) are carried over unless --strict
 refuses them or --drop-missing drops their rows. It warns when the log has
 no readings, or when the field's median |B| is far from the Earth's field
 (a unit is probably wrong; see "undercurrent inspect").
@@ -50,6 +53,7 @@ Examples:
 			rf.add(fs)
 			rf.addMissing(fs)
 			fs.BoolVar(&strict, "strict", false, "treat missing values (NaN, empty cells, nulls) as errors")
+			fs.BoolVar(&force, "force", false, "replace OUT if it exists (without it an existing OUT is refused, so that IN and OUT swapped cannot replace a log)")
 		},
 		run: func(ctx context.Context, fs *pflag.FlagSet, args []string, stdout, stderr io.Writer) error {
 			if len(args) != 2 {
@@ -68,8 +72,14 @@ Examples:
 					return usageErrorf("IN and OUT are the same file")
 				}
 			}
+			if err := checkOutputs([][2]string{{"OUT", out}}, [][2]string{{"IN", in}}); err != nil {
+				return err
+			}
 			if err := checkParentDir(out); err != nil {
 				return fmt.Errorf("OUT %s: %w", out, err)
+			}
+			if err := checkNewFile("OUT", out, force); err != nil {
+				return err
 			}
 			opts, err := rf.options(fs)
 			if err != nil {
@@ -84,7 +94,7 @@ Examples:
 				if err := ctx.Err(); err != nil {
 					return err
 				}
-				if err := writeSamplesLog(out, s); err != nil {
+				if err := writeSamplesLog(out, s, force); err != nil {
 					return err
 				}
 				for _, w := range warns {
@@ -105,7 +115,7 @@ Examples:
 			}
 			defer r.Release()
 			cr := &countingReader{Reader: r, ctx: ctx}
-			err = writeLog(out, cr)
+			err = writeLog(out, cr, force)
 			done()
 			if err != nil {
 				return err

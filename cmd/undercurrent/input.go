@@ -44,11 +44,11 @@ type readFlags struct {
 }
 
 // fieldUnits lists the field units ingest accepts, for help texts.
-const fieldUnits = "nT, pT, uT, mT, T, G or mG"
+var fieldUnits = ingest.FieldUnits
 
 func (f *readFlags) add(fs *pflag.FlagSet) {
 	fs.StringSliceVar(&f.columns, "column", nil, "map canonical columns to the file's names: `CANON=NAME`, e.g. bx=Bx_uT,time=t_s,group=traverse (repeatable; a name holding a comma is given as it is, --column 'bx=Field X, nT': a part after a comma without = continues the name)")
-	fs.StringSliceVar(&f.units, "unit", nil, "units of columns: `CANON=UNIT`, e.g. bx=uT,time=ms (field nT/pT/uT/mT/T/G/mG, or V/mV/uV/nV for induction coils with locate --coil; length m/cm/mm/km/ft; time s/ms/us/ns, or UTC for timestamps without a zone that are UTC; repeatable)")
+	fs.StringSliceVar(&f.units, "unit", nil, "units of columns: `CANON=UNIT`, e.g. bx=uT,time=ms (field "+fieldUnits+", or V/mV/uV/nV for induction coils with locate --coil; length m/cm/mm/km/ft; time s/ms/us/ns, or UTC for timestamps without a zone that are UTC; repeatable)")
 	fs.StringSliceVar(&f.columnsOld, "columns", nil, "same as --column")
 	fs.StringSliceVar(&f.unitsOld, "units", nil, "same as --unit")
 	_ = fs.MarkHidden("columns")
@@ -61,7 +61,7 @@ func (f *readFlags) add(fs *pflag.FlagSet) {
 	fs.BoolVar(&f.decimalComma, "decimal-comma", false, "CSV numbers write decimals with a comma (12,5); default: detected, when the delimiter is not a comma, from the first data row with a number written with a decimal comma or point; --decimal-comma=false refuses them")
 	fs.BoolVar(&f.allowUnterminated, "allow-unterminated", false, "read an Arrow IPC stream file that stops without its end-of-stream marker (a copy cut short or a writer killed mid-run): the rows before the cut, with a warning")
 	fs.StringVar(&f.timeOrder, "time-order", "ordered", "how time must run through a log: ordered, per-group (within each value of the group column: sensors or traverses logged one after another) or any")
-	fs.BoolVar(&f.iagaBaseline, "iaga-baseline-frame", false, "leave IAGA-2002 variation data (H D Z, H E Z; a base-station log too) in the observatory's baseline frame instead of turning them to geographic north by the header's DECBAS")
+	fs.BoolVar(&f.iagaBaseline, "iaga-baseline-frame", false, "leave IAGA-2002 variation data (H D Z, H E Z; a base-station log too) in the observatory's baseline frame instead of turning them to geographic north by the header's DECBAS; H E Z data of other types (adjusted, definitive), which are never turned, are then read without a warning")
 }
 
 // addMissing declares --drop-missing, for the commands that need every
@@ -512,6 +512,7 @@ func cliWording(s string) string {
 	s = strings.ReplaceAll(s, "(WithFrame, on the command line --frame)", "(--frame)")
 	s = mappingHint.ReplaceAllString(s, "with --column $1=NAME")
 	s = unitHint.ReplaceAllString(s, "--unit $1=U")
+	s = mapUnitHint.ReplaceAllString(s, "($1)")
 	return singleBatch.ReplaceAllString(s, "${1}1 record batch$2")
 }
 
@@ -520,6 +521,9 @@ var mappingHint = regexp.MustCompile(`with a column mapping such as ([a-z]+)=NAM
 
 // unitHint matches ingest's advice to give a column's unit.
 var unitHint = regexp.MustCompile(`a unit option ([a-z]+)=U \(on the command line --unit [a-z]+=U\)`)
+
+// mapUnitHint matches ingest's advice to map a column and give its unit.
+var mapUnitHint = regexp.MustCompile(`\(a column mapping .*? and a unit option [a-z]+=U; on the command line (--column .*? --unit [a-z]+=U)\)`)
 
 // singleBatch matches "1 record batches" (and not "11 record batches").
 var singleBatch = regexp.MustCompile(`(^|[^0-9.])1 record batches($|[^A-Za-z])`)

@@ -53,43 +53,172 @@ func checkOutFile(flag, path string, log bool) error {
 }
 
 // writeLog writes the rest of r to path, atomically, in the format its
-// extension names in any case. ingest picks the format from a lower-case
-// extension, so a name such as "out.PARQUET" is written under a temporary
-// lower-case name beside it and renamed.
-func writeLog(path string, r ingest.Reader) error {
-	ext := filepath.Ext(path)
-	canon, ok := logExts[strings.ToLower(ext)]
-	if !ok {
-		return checkLogExt(path)
-	}
-	if _, err := ingest.FormatFromExt(path); err == nil {
-		return ingest.WriteReader(path, r)
-	}
-	f, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".tmp*"+canon)
+// extension names in any case, replacing an existing file only when
+// replace is set (see placeFile). ingest picks the format from a
+// lower-case extension, so the log is written under a temporary
+// lower-case name beside path and renamed.
+func writeLog(path string, r ingest.Reader, replace bool) error {
+	tmp, err := stageLog(path, r)
 	if err != nil {
 		return err
 	}
+	return placeFile(tmp, path, replace)
+}
+
+// stageLog writes the rest of r in the format path's extension names to a
+// temporary file beside path (.NAME.tmpDIGITS.EXT, see tempfiles.go) and
+// returns its name; placeFile then puts it in place. On an error nothing
+// is left.
+func stageLog(path string, r ingest.Reader) (string, error) {
+	canon, ok := logExts[strings.ToLower(filepath.Ext(path))]
+	if !ok {
+		return "", checkLogExt(path)
+	}
+	return stageFile(path, canon, func(tmp string) error { return ingest.WriteReader(tmp, r) })
+}
+
+// stageFile makes a temporary file beside path, named to end in ext,
+// fills it with write (which may replace it whole, as ingest's atomic
+// writers do) and returns its name. On an error nothing is left.
+func stageFile(path, ext string, write func(tmp string) error) (string, error) {
+	f, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".tmp*"+ext)
+	if err != nil {
+		return "", err
+	}
 	tmp := f.Name()
 	f.Close()
-	if err := ingest.WriteReader(tmp, r); err != nil {
+	if err := write(tmp); err != nil {
 		os.Remove(tmp)
+		return "", err
+	}
+	return tmp, nil
+}
+
+// placeFile renames the temporary file tmp to path. Unless replace is
+// set it never replaces a file: tmp is linked to path, which fails when
+// path exists, even one made while the output was being written after
+// checkNewFile had found none (on a file system without hard links, path
+// is looked up just before the rename); an empty file is replaced, as
+// checkNewFile allows. tmp is gone afterwards either way.
+func placeFile(tmp, path string, replace bool) error {
+	defer os.Remove(tmp)
+	if replace {
+		return os.Rename(tmp, path)
+	}
+	err := os.Link(tmp, path)
+	if err == nil {
+		return nil
+	}
+	fi, lerr := os.Lstat(path)
+	if lerr == nil && fi.Mode().IsRegular() && fi.Size() == 0 {
+		return os.Rename(tmp, path) // an empty file is taken as new (checkNewFile)
+	}
+	if errors.Is(err, os.ErrExist) || lerr == nil {
+		return fmt.Errorf("%s: a file of that name was made while this output was being written; it is left as it is, and this output was not written (give --force to replace it)", path)
+	}
+	return os.Rename(tmp, path)
+}
+
+// staged holds the temporary files of outputs written together (simulate
+// -o, --base-log and --truth), to be put in place together by place or
+// removed by discard.
+type staged struct {
+	tmp, path []string
+	placed    int
+	made      []string // outputs placed that did not exist before
+}
+
+// add stages one output at path with write, which returns the temporary
+// file's name (stageLog, stageFile).
+func (st *staged) add(path string, write func() (string, error)) error {
+	tmp, err := write()
+	if err != nil {
 		return err
 	}
-	if err := os.Rename(tmp, path); err != nil {
-		os.Remove(tmp)
-		return err
+	st.tmp, st.path = append(st.tmp, tmp), append(st.path, path)
+	return nil
+}
+
+// place puts every staged file in place (placeFile). When one cannot be,
+// the others are not, and the ones already placed that were new files
+// are removed, so that the outputs appear together or not at all (a file
+// replaced with replace set is gone either way).
+func (st *staged) place(replace bool) error {
+	for i, tmp := range st.tmp {
+		_, err := os.Lstat(st.path[i])
+		isNew := notThere(err)
+		st.placed = i + 1
+		if err := placeFile(tmp, st.path[i], replace); err != nil {
+			for _, p := range st.made {
+				os.Remove(p)
+			}
+			st.made = nil
+			return err
+		}
+		if isNew {
+			st.made = append(st.made, st.path[i])
+		}
 	}
 	return nil
 }
 
+// discard removes the staged files not placed.
+func (st *staged) discard() {
+	for _, tmp := range st.tmp[st.placed:] {
+		os.Remove(tmp)
+	}
+}
+
 // writeSamplesLog writes s to path like writeLog.
-func writeSamplesLog(path string, s *ingest.Samples) error {
+func writeSamplesLog(path string, s *ingest.Samples, replace bool) error {
 	r, err := ingest.NewSamplesReader(s, 0, nil)
 	if err != nil {
 		return err
 	}
 	defer r.Release()
-	return writeLog(path, r)
+	return writeLog(path, r, replace)
+}
+
+// stageSamplesLog writes s to a temporary file beside path like stageLog.
+func stageSamplesLog(path string, s *ingest.Samples) (string, error) {
+	r, err := ingest.NewSamplesReader(s, 0, nil)
+	if err != nil {
+		return "", err
+	}
+	defer r.Release()
+	return stageLog(path, r)
+}
+
+// checkNewFile checks, before any work, an output file of a command that
+// writes logs (simulate -o, --base-log and --truth; convert's OUT): a
+// directory is refused, and so is a file that exists and is not empty,
+// unless force is set. Logs are the most valuable files a crew has, and
+// these commands write under any name: without the check a mistyped -o,
+// or convert's IN and OUT swapped (convert survey.parquet survey.csv for
+// the other way), replaced a field log without a word. Like calibrate -o
+// (checkCalibrationOut) and locate -o DIR (checkOutDir), which replace
+// only what they wrote, it is a usage error. name is the flag or argument
+// that gave path.
+func checkNewFile(name, path string, force bool) error {
+	fi, err := existingOut(name, path, "the output file's name")
+	if err != nil || fi == nil || fi.Size() == 0 || force {
+		return err
+	}
+	return usageErrorf("%s %s: the file exists (%s): it is not replaced unless --force is given, so that a mistyped name cannot replace a log; choose another name, or give --force to replace it", name, path, plural(int(fi.Size()), "byte"))
+}
+
+// existingOut returns what os.Stat says of an output file path given by
+// name (a flag or argument), nil when it does not exist, and a usage
+// error when it is a directory (what: what to give instead).
+func existingOut(name, path, what string) (os.FileInfo, error) {
+	fi, err := os.Stat(path)
+	if err != nil {
+		return nil, nil // a new file (checkOutFile has checked its directory)
+	}
+	if fi.IsDir() {
+		return nil, usageErrorf("%s %s is a directory: give %s", name, path, what)
+	}
+	return fi, nil
 }
 
 // sameFile reports whether paths a and b name the same file: for two
@@ -149,15 +278,9 @@ func checkCalibrationOut(out string, ins ...[2]string) error {
 	if err := checkOutputs([][2]string{{"-o", out}}, ins); err != nil {
 		return err
 	}
-	fi, err := os.Stat(out)
-	if err != nil {
-		return nil // a new file (checkOutFile has checked its directory)
-	}
-	if fi.IsDir() {
-		return usageErrorf("-o %s is a directory: give the calibration file's name", out)
-	}
-	if fi.Size() == 0 {
-		return nil
+	fi, err := existingOut("-o", out, "the calibration file's name")
+	if err != nil || fi == nil || fi.Size() == 0 {
+		return err
 	}
 	why := "not a calibration file"
 	if fi.Size() <= 1<<20 {

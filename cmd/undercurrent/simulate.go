@@ -19,6 +19,7 @@ func init() {
 	var (
 		out, baseOut, truthOut string
 		seed                   int64
+		force                  bool
 	)
 	register(&command{
 		name:    "simulate",
@@ -32,7 +33,10 @@ extension of LOG: .csv, .arrow (Arrow IPC file), .arrows (Arrow IPC stream)
 or .parquet, in any case. Each survey line gets its own value in the group
 column; with pattern = "fixed" each fixed sensor's rows carry its name and
 its readings in its own axes: a log for the replay command. The directory of
-each output file must exist.
+each output file must exist. An output file that exists (and is not
+empty) is refused before any work unless --force is given, so that a
+mistyped name cannot replace a log; the files are written under temporary
+names and put in place together, so a run that fails leaves none of them.
 
 Use it to plan a survey (is this current detectable at this depth with this
 sensor?) and to check the locate command against known answers. It prints
@@ -41,7 +45,7 @@ sensor noise.
 
 Examples:
   undercurrent simulate testdata/demo/fenwick-lane.toml -o fenwick-lane.csv
-  undercurrent simulate testdata/scenarios/kestrel-moor-step.toml -o kestrel.parquet --base-log base.csv
+  undercurrent simulate testdata/scenarios/kestrel-moor-step.toml -o kestrel.parquet --base-log kestrel-base.csv
   undercurrent simulate --seed 7 testdata/scenarios/single-line.toml -o line.arrow --truth line-truth.csv
   undercurrent simulate testdata/scenarios/harrow-fen-fixed.toml -o recorded.arrows`,
 		setFlags: func(fs *pflag.FlagSet) {
@@ -49,6 +53,7 @@ Examples:
 			fs.StringVar(&baseOut, "base-log", "", "also write the scenario's base-station log to `FILE`")
 			fs.StringVar(&truthOut, "truth", "", "also write where each survey line crosses each conductor (position, depth, current) to CSV `FILE`, to compare with locate's results")
 			fs.Int64Var(&seed, "seed", 0, "override the scenario's random seed")
+			fs.BoolVar(&force, "force", false, "replace LOG, and the --base-log and --truth files, if they exist (without it an existing file is refused, so that a mistyped name cannot replace a log)")
 		},
 		run: func(ctx context.Context, fs *pflag.FlagSet, args []string, stdout, stderr io.Writer) error {
 			if len(args) != 1 {
@@ -70,8 +75,17 @@ Examples:
 					return err
 				}
 			}
-			if err := checkOutputs([][2]string{{"-o", out}, {"--base-log", baseOut}, {"--truth", truthOut}}, [][2]string{{"SCENARIO", args[0]}}); err != nil {
+			outs := [][2]string{{"-o", out}, {"--base-log", baseOut}, {"--truth", truthOut}}
+			if err := checkOutputs(outs, [][2]string{{"SCENARIO", args[0]}}); err != nil {
 				return err
+			}
+			for _, o := range outs {
+				if o[1] == "" {
+					continue
+				}
+				if err := checkNewFile(o[0], o[1], force); err != nil {
+					return err
+				}
 			}
 			sc, err := simulate.Load(args[0])
 			if err != nil {
@@ -96,13 +110,34 @@ Examples:
 					return err
 				}
 			}
-			// Stop before writing anything once interrupted; the files
-			// below are written quickly, each whole or not at all.
+			// Stop before writing anything once interrupted. Every file
+			// is written under a temporary name first and all are put in
+			// place together, so a run that fails leaves none of them.
 			if err := ctx.Err(); err != nil {
 				return err
 			}
 			line.set(fmt.Sprintf("writing %s (%d rows)", out, s.Len()))
-			if err := writeSamplesLog(out, s); err != nil {
+			var st staged
+			defer st.discard()
+			if err := st.add(out, func() (string, error) { return stageSamplesLog(out, s) }); err != nil {
+				return err
+			}
+			if baseOut != "" {
+				if err := st.add(baseOut, func() (string, error) { return stageSamplesLog(baseOut, b) }); err != nil {
+					return err
+				}
+			}
+			if truthOut != "" {
+				if err := st.add(truthOut, func() (string, error) {
+					return stageFile(truthOut, "", func(tmp string) error { return writeTruth(tmp, sc) })
+				}); err != nil {
+					return err
+				}
+			}
+			if err := ctx.Err(); err != nil {
+				return err
+			}
+			if err := st.place(force); err != nil {
 				return err
 			}
 			line.clear()
@@ -117,15 +152,9 @@ Examples:
 				fmt.Fprintf(stdout, "wrote %s: %d readings on %d survey lines over %s\n", out, s.Len(), n, span(s.Time))
 			}
 			if baseOut != "" {
-				if err := writeSamplesLog(baseOut, b); err != nil {
-					return err
-				}
 				fmt.Fprintf(stdout, "wrote %s: %d base-station readings\n", baseOut, b.Len())
 			}
 			if truthOut != "" {
-				if err := writeTruth(truthOut, sc); err != nil {
-					return err
-				}
 				fmt.Fprintf(stdout, "wrote %s: %d crossings of survey lines over conductors\n", truthOut, len(sc.Crossings()))
 			}
 			printDetectability(stdout, sc)

@@ -84,7 +84,7 @@ func TestStageLineOnTerminal(t *testing.T) {
 	if !strings.HasSuffix(shown, "\r\x1b[K") {
 		t.Errorf("locate left its stage line: %q", shown)
 	}
-	for _, args := range [][]string{{"simulate", scen, "-o", log}, {"locate", log}} {
+	for _, args := range [][]string{{"simulate", scen, "-o", log, "--force"}, {"locate", log}} {
 		if code, _, errOut := cli(t, args...); code != 0 || errOut != "" {
 			t.Errorf("%q in a pipe: exit %d, stderr %q", args, code, errOut)
 		}

@@ -560,7 +560,18 @@ func (sc *Scenario) keyErr(k toml.Key, format string, a ...any) error {
 	}
 	// A toml.Key does not number the entries of an array of tables, so
 	// accept the key in any of them.
-	if line, col := findKey(sc.text, table, -1, key); line > 0 {
+	line, col := findKey(sc.text, table, -1, key)
+	// A dotted key (nope.name = "x" at the top, or in the table of a
+	// shorter prefix).
+	for i := len(k) - 2; line == 0 && i >= 0; i-- {
+		line, col = findKey(sc.text, strings.Join(k[:i], "."), -1, strings.Join(k[i:], "."))
+	}
+	if line == 0 && len(k) > 0 {
+		// A table of that name, [nope] or [[nope]] (or [sensor.nope]):
+		// point at its header.
+		line, col = findKey(sc.text, strings.Join(k, "."), -1, "")
+	}
+	if line > 0 {
 		return fmt.Errorf("simulate: %s:%d:%d: %s", sc.Source, line, col, fmt.Sprintf(format, a...))
 	}
 	return fmt.Errorf("simulate: %s: %s", sc.Source, fmt.Sprintf(format, a...))

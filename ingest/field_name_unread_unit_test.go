@@ -1,0 +1,84 @@
+package ingest
+
+import (
+	"math"
+	"strings"
+	"testing"
+)
+
+// TestUnreadUnitColumnNamed checks the error for a field column that is bx
+// by its name but whose name states a unit not read ("bx [furlong]",
+// "Bx_MT", "bx_nT_x10", "bx [0.1 nT]"): it names the column, the text
+// taken for its unit and every field unit read, and says how to map it.
+// Before, the error was "no column for bx" with the column in the list of
+// columns found and no reason given.
+func TestUnreadUnitColumnNamed(t *testing.T) {
+	for _, c := range []struct{ header, unit, mapping string }{
+		{"bx [furlong]", "furlong", "'bx=bx [furlong]'"},
+		{"Bx_MT", "MT", "bx=Bx_MT"},
+		{"bx_nT_x10", "nT_x10", "bx=bx_nT_x10"},
+		{"Bx (0.1 nT)", "0.1 nT", "'bx=Bx (0.1 nT)'"},
+	} {
+		p := writeFile(t, "u.csv", "# a logger's export\ntime,"+c.header+",by,bz\n0,0.5,1,2\n")
+		_, err := ReadSamples(p)
+		if err == nil {
+			t.Errorf("%s: read without an error", c.header)
+			continue
+		}
+		msg := err.Error()
+		for _, want := range []string{
+			"u.csv:2:",
+			"no column for bx: column " + `"` + c.header + `"` + " is bx by its name",
+			`unknown field unit "` + c.unit + `" (want ` + FieldUnits + ")",
+			"--column " + c.mapping + " --unit bx=U",
+		} {
+			if !strings.Contains(msg, want) {
+				t.Errorf("%s: error %q does not contain %q", c.header, msg, want)
+			}
+		}
+	}
+	// A column that is taken by its name, and a log where the axis is
+	// simply absent, are not affected.
+	p := writeFile(t, "u.csv", "time,bx [uT],by,bz\n0,0.5,1,2\n")
+	if _, err := ReadSamples(p); err != nil {
+		t.Errorf("bx [uT]: %v", err)
+	}
+	p = writeFile(t, "u.csv", "time,mag,by,bz\n0,0.5,1,2\n")
+	_, err := ReadSamples(p)
+	wantErr(t, err, "no column for bx (columns found:")
+}
+
+// TestFieldUnitsListed checks that every field unit read is named in the
+// message for a unit that is not: before, "want nT, pT, uT, mT, T, G or
+// mG" left out the gamma, the oersted and the names written out, which are
+// read. The sizes are those of BIPM, SI Brochure, 8th ed., 2006, Tables 9
+// and 10 (1 γ = 1 nT, 1 G = 1e-4 T, 1 Oe read as B = µ0 H = 1e-4 T).
+func TestFieldUnitsListed(t *testing.T) {
+	_, err := unitScale(kindField, "furlong")
+	if err == nil {
+		t.Fatal("furlong read as a field unit")
+	}
+	msg := err.Error()
+	words := strings.FieldsFunc(msg, func(r rune) bool { return strings.ContainsRune(" (),\"", r) })
+	for _, u := range []struct {
+		name string
+		nT   float64
+	}{
+		{"nT", 1}, {"nanotesla", 1}, {"gamma", 1}, {"pT", 1e-3}, {"picotesla", 1e-3},
+		{"uT", 1e3}, {"µT", 1e3}, {"microtesla", 1e3}, {"mT", 1e6}, {"millitesla", 1e6},
+		{"T", 1e9}, {"tesla", 1e9}, {"G", 1e5}, {"gauss", 1e5}, {"mG", 100}, {"milligauss", 100},
+		{"mgauss", 100}, {"Oe", 1e5}, {"oersted", 1e5},
+	} {
+		s, err := unitScale(kindField, u.name)
+		if err != nil || math.Abs(s-u.nT) > 1e-12*u.nT {
+			t.Errorf("%s: %v nT (%v), want %v", u.name, s, err, u.nT)
+		}
+		found := false
+		for _, w := range words {
+			found = found || w == u.name
+		}
+		if !found {
+			t.Errorf("%s is read but not listed in %q", u.name, msg)
+		}
+	}
+}

@@ -1,0 +1,114 @@
+package ingest
+
+import (
+	"math"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"undercurrent/ingest/ingesttest"
+)
+
+// heWarning is the start of the warning for H E Z data that are not turned.
+const heWarning = "in H E Z: east and north are read as E and H"
+
+// TestIAGAHENotGeographicReal checks the real adjusted Boulder file
+// BOU202005adj.min (Reported HENULNUL, Data Type adjusted, no DECBAS;
+// INTERMAGNET data distributed by the USGS, SOURCE.md there): H and E are
+// not the X and Y that IAGA-2002 gives for geographic north and east
+// (SOURCE.md: "X, Y, Z are north, east and down"), so reading E as east and
+// H as north is warned about and marked in the metadata, as variation data
+// in H D Z without DECBAS are. Before, the file was read as geographic
+// without a word. Keeping the observatory's frame on request reads it the
+// same way without the warning. The values are the file's first row.
+func TestIAGAHENotGeographicReal(t *testing.T) {
+	path := filepath.Join(ingesttest.IAGADir(t), "BOU202005adj.min")
+	in, err := Inspect(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !hasWarning(in.Warnings, "adjusted data "+heWarning) {
+		t.Errorf("warnings %q, want one saying H E Z adjusted data are not geographic", in.Warnings)
+	}
+	if in.Meta["horizontal_frame"] != IAGAHENotTurned {
+		t.Errorf("horizontal_frame %q, want %q", in.Meta["horizontal_frame"], IAGAHENotTurned)
+	}
+	s, err := ReadSamples(path, WithAllowMissing(true))
+	if err != nil {
+		t.Fatal(err)
+	}
+	// First row: BOUH -20799.04, BOUE 80.92 (the file's own text).
+	if math.Abs(s.Bx[0]-80.92) > 1e-9 || math.Abs(s.By[0]+20799.04) > 1e-9 {
+		t.Errorf("first row east %v north %v, want E 80.92 and H -20799.04, not turned", s.Bx[0], s.By[0])
+	}
+	in, err = Inspect(path, WithIAGABaselineFrame(true))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if hasWarning(in.Warnings, heWarning) || in.Meta["horizontal_frame"] != IAGABaselineKept {
+		t.Errorf("frame kept: warnings %q, horizontal_frame %q", in.Warnings, in.Meta["horizontal_frame"])
+	}
+	// The variation file in H E Z gives DECBAS and is turned: no warning.
+	in, err = Inspect(filepath.Join(ingesttest.IAGADir(t), "BOU20200101vsec.sec"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if hasWarning(in.Warnings, heWarning) || in.Meta["horizontal_frame"] != IAGAGeographic {
+		t.Errorf("BOU20200101vsec.sec: warnings %q, horizontal_frame %q", in.Warnings, in.Meta["horizontal_frame"])
+	}
+}
+
+// TestIAGAHENotGeographicTypes covers the element sets and data types: H E
+// Z of any type but variation is warned about (a DECBAS line does not turn
+// it: only variation data are turned), while X Y Z and definitive H D Z,
+// geographic as read, are not.
+func TestIAGAHENotGeographicTypes(t *testing.T) {
+	head := func(typ, decbas string) string {
+		h := " Format                 IAGA-2002                                    |\n" +
+			" IAGA CODE              HFN                                          |\n"
+		if typ != "" {
+			h += " Data Type              " + typ + "\n"
+		}
+		if decbas != "" {
+			h += " # DECBAS               " + decbas + "    (Baseline declination value in       |\n"
+		}
+		return h
+	}
+	cols := func(e string) string {
+		return "DATE       TIME         DOY     HFN" + e[:1] + "      HFN" + e[1:2] + "      HFN" + e[2:] + "      HFNF   |\n"
+	}
+	row := "2024-03-01 00:00:00.000 061     20000.00    100.00  46000.00  50000.00\n"
+	for _, c := range []struct {
+		name, typ, decbas, elements string
+		warn                        bool
+	}{
+		{"definitive HEZ", "definitive", "", "HEZ", true},
+		{"definitive HEZ with DECBAS", "definitive", "5400", "HEZ", true},
+		{"HEZ of no stated type", "", "", "HEZ", true},
+		{"provisional HEZ", "provisional", "", "HEZ", true},
+		{"variation HEZ with DECBAS", "variation", "5400", "HEZ", false},
+		{"definitive XYZ", "definitive", "", "XYZ", false},
+		{"definitive HDZ", "definitive", "", "HDZ", false},
+	} {
+		in, err := Inspect(writeFile(t, "hfn.min", head(c.typ, c.decbas)+cols(c.elements)+row))
+		if err != nil {
+			t.Errorf("%s: %v", c.name, err)
+			continue
+		}
+		if got := hasWarning(in.Warnings, heWarning); got != c.warn {
+			t.Errorf("%s: warned %v, want %v (warnings %q)", c.name, got, c.warn, in.Warnings)
+		}
+		if got := in.Meta["horizontal_frame"] == IAGAHENotTurned; got != c.warn {
+			t.Errorf("%s: horizontal_frame %q", c.name, in.Meta["horizontal_frame"])
+		}
+	}
+}
+
+func hasWarning(warnings []string, part string) bool {
+	for _, w := range warnings {
+		if strings.Contains(w, part) {
+			return true
+		}
+	}
+	return false
+}
