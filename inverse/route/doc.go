@@ -11,9 +11,9 @@
 //     (a coating defect, a leak to earth, a tee), and stations whose current
 //     departs from both neighbours (a local disturbance, not a step); and
 //     where the conductor ends or its current leaves it for good: stations
-//     at either end of the route whose lines all lie over twice as deep as
-//     the sound stations before them with under three quarters of their
-//     current, the field past a conductor's end, are left out of the
+//     at either end of the route whose lines all lie over one and a half
+//     times as deep as the sound stations before them and short of their
+//     current as past an end, not as where a conductor dives, are left out of the
 //     profile and the end is reported (ends.go);
 //   - cover shallower than a minimum the caller names;
 //   - stations whose fit is poor or ambiguous; when the sound stations

@@ -32,7 +32,8 @@ import (
 // (see fitLevels). As H tends to zero f becomes a
 // sharp step; a gradual transition is used only when it lowers chi-square
 // by more than sharpZ^2 (in units of the Birge scale) against the sharp
-// step. The stations used are the run's own and up to
+// step, or when the two stations beside the sharp step both read part of
+// it (partial.go). The stations used are the run's own and up to
 // plateauStations+maxTransition sound ones beyond each end (never crossing
 // a neighbouring step; poor fits, with a Problem or a reduced chi-square
 // over the limit, left out); stations more than outlierZ robust standard
@@ -65,6 +66,14 @@ type levels struct {
 	slope, slopeSigma                      float64
 	at, atSigma, width                     float64
 	nBefore, nAfter                        int
+	// sharpStep and sharpSigma are the best sharp step's size and sigma
+	// (its own, Birge-scaled): a partial reading beside the step only
+	// ever makes it smaller, so it tells whether there is a step at all
+	// where the transition's width, unknown, leaves the size uncertain.
+	sharpStep, sharpSigma float64
+	// partial holds the two stations beside the step that both read
+	// part of it, when they made the transition's width free (partial.go).
+	partial []*Placed
 }
 
 // clean reports whether a station's fit is sound enough to set a level.
@@ -112,7 +121,7 @@ func plateau(u []*Placed, set *Settings, ia, ib, lo, hi int) levels {
 	if sp <= 0 {
 		sp = 1
 	}
-	g := search(pts, xa, xb, sp)
+	g := search(pts, xa, xb, sp, sharpZ)
 	// Scatter beyond the fit sigmas (model error that each group's own
 	// sigma does not see: a bend, a neighbouring conductor) is shared by
 	// all stations alike: weigh them by 1/(s^2 + tau^2) and search again.
@@ -120,7 +129,7 @@ func plateau(u []*Placed, set *Settings, ia, ib, lo, hi int) levels {
 		for k := range pts {
 			pts[k].w = 1 / (1/pts[k].w + tau2)
 		}
-		g = search(pts, xa, xb, sp)
+		g = search(pts, xa, xb, sp, sharpZ)
 	}
 	// Leave out outliers and search again.
 	z := make([]float64, len(pts))
@@ -143,13 +152,32 @@ func plateau(u []*Placed, set *Settings, ia, ib, lo, hi int) levels {
 	}
 	if len(kept) < len(pts) && nb > 0 && na > 0 {
 		pts = kept
-		g = search(pts, xa, xb, sp)
+		g = search(pts, xa, xb, sp, sharpZ)
+	}
+	// A sharp step whose two neighbouring stations both read part of it
+	// (partial.go) has a transition of some width, which the stations
+	// may not fix: the best transition, gradual or sharp, is kept, and
+	// the profile interval runs over both.
+	var part []float64
+	if g.best.h == 0 {
+		if p, ok := partialFit(pts, g.best.xf); ok && p.reads() {
+			part = []float64{pts[p.kb].x, pts[p.ka].x}
+			g = search(pts, xa, xb, sp, 0)
+		}
 	}
 	if g.best.h > 0 {
 		g = refine(pts, g, xa, xb, sp)
 	}
 	f := g.best
 	var lv levels
+	for _, x := range part {
+		for _, i := range idx {
+			if u[i].Chainage == x {
+				lv.partial = append(lv.partial, u[i])
+				break
+			}
+		}
+	}
 	for _, p := range pts {
 		if p.x < f.xf {
 			lv.nBefore++
@@ -167,6 +195,7 @@ func plateau(u []*Placed, set *Settings, ia, ib, lo, hi int) levels {
 	if f.h == 0 {
 		lv.sigma = math.Hypot(lv.sigma, nearStation(pts, f))
 	}
+	lv.sharpStep, lv.sharpSigma = g.sharp.c[1]-g.sharp.c[0], math.Sqrt(stepVar(&g.sharp))
 	if f.slope {
 		lv.slope, lv.slopeSigma = f.c[2], math.Sqrt(f.cov[2][2])
 	}
@@ -179,8 +208,22 @@ func plateau(u []*Placed, set *Settings, ia, ib, lo, hi int) levels {
 		lv = levels{before: a.Current, after: b.Current, sigmaBefore: sa, sigmaAfter: sb,
 			step: b.Current - a.Current, sigma: math.Hypot(sa, sb),
 			at: (xa + xb) / 2, atSigma: (xb - xa) / 2, nBefore: 1, nAfter: 1}
+		lv.sharpStep, lv.sharpSigma = lv.step, lv.sigma
 	}
 	return lv
+}
+
+// z is the significance of the step: the larger of the size's and, when
+// of the same sign, the best sharp step's, each over its sigma.
+func (l *levels) z() float64 {
+	z := math.Abs(l.step) / l.sigma
+	if (l.sharpStep > 0) == (l.step > 0) && l.sharpSigma > 0 {
+		z = math.Max(z, math.Abs(l.sharpStep)/l.sharpSigma)
+	}
+	if math.IsNaN(z) {
+		return 0
+	}
+	return z
 }
 
 // stepVar is the variance of the step after - before of fit f (scaled by
@@ -311,6 +354,15 @@ func nearStation(pts []lvPoint, f lvFit) float64 {
 		}
 		worst = math.Max(worst, d*d-math.Max(vo-v, 0))
 	}
+	// Both left out at once (partial.go): where the noise hides that both
+	// read part of the step, the change leaving them out makes.
+	if p, ok := partialFit(pts, f.xf); ok {
+		vo := stepVar(&p.fit)
+		d := p.fit.c[1] - p.fit.c[0] - step
+		if finite(d) && finite(vo) && (d > 0) == (step > 0) {
+			worst = math.Max(worst, d*d-math.Max(vo-v, 0))
+		}
+	}
 	return math.Sqrt(worst)
 }
 
@@ -349,14 +401,15 @@ func excess(pts []lvPoint, f *lvFit) float64 {
 // step and the half-width of the location over the grid points within the
 // Birge scale of the minimum chi-square (spread is the step's sigma).
 type gridResult struct {
-	best            lvFit
+	best, sharp     lvFit
+	grad            lvFit
 	spread, atSigma float64
 }
 
 // search fits the level model at every grid point: x_f across [xa, xb], H
 // zero (a sharp step) and on a logarithmic grid from 0.02 to 3 station
 // spacings.
-func search(pts []lvPoint, xa, xb, sp float64) gridResult {
+func search(pts []lvPoint, xa, xb, sp, sz float64) gridResult {
 	fits := make([]lvFit, 0, gridX*gridH)
 	best, sharp := -1, -1
 	for i := range gridX {
@@ -376,10 +429,18 @@ func search(pts []lvPoint, xa, xb, sp float64) gridResult {
 			}
 		}
 	}
+	sharpFit := fits[sharp]
+	grad := -1
+	for k, f := range fits {
+		if k%gridH != 0 && (grad < 0 || f.chi2 < fits[grad].chi2) {
+			grad = k
+		}
+	}
+	gradFit := fits[grad]
 	// A gradual transition must earn its keep: unless it lowers chi-square
 	// by more than sharpZ^2 (in units of the Birge scale) the step is
 	// taken as sharp, and only the sharp grid points are used.
-	if fits[sharp].chi2-fits[best].chi2 <= sharpZ*sharpZ*fits[best].scale {
+	if fits[sharp].chi2-fits[best].chi2 <= sz*sz*fits[best].scale {
 		best = sharp / gridH // its index among the sharp points kept below
 		keep := fits[:0]
 		for k, f := range fits {
@@ -389,7 +450,7 @@ func search(pts []lvPoint, xa, xb, sp float64) gridResult {
 		}
 		fits = keep
 	}
-	r := gridResult{best: fits[best]}
+	r := gridResult{best: fits[best], sharp: sharpFit, grad: gradFit}
 	// For fixed x_f and H the model is linear, so chi-square grows as
 	// (s - s_k)^2 / v_k about that grid point's step s_k (v_k its unscaled
 	// variance): the steps within the Birge scale of the minimum form the

@@ -310,6 +310,7 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64, bs 
 		if tau > 0 {
 			pl.sigmaBefore, pl.sigmaAfter = math.Hypot(pl.sigmaBefore, tau), math.Hypot(pl.sigmaAfter, tau)
 			pl.sigma = math.Hypot(pl.sigma, math.Sqrt2*tau)
+			pl.sharpSigma = math.Hypot(pl.sharpSigma, math.Sqrt2*tau)
 		}
 		// Stations beside a strained one share the model's error that
 		// strains it, and so do their neighbours on the plateau: the
@@ -317,6 +318,7 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64, bs 
 		sb, sa := besideShift(uo, set, runs[r][0], lo, -1), besideShift(uo, set, runs[r][1], hi, 1)
 		pl.sigmaBefore, pl.sigmaAfter = math.Hypot(pl.sigmaBefore, sb), math.Hypot(pl.sigmaAfter, sa)
 		pl.sigma = math.Hypot(pl.sigma, math.Hypot(sb, sa))
+		pl.sharpSigma = math.Hypot(pl.sharpSigma, math.Hypot(sb, sa))
 		return pl
 	}
 	// A run whose levels agree is no step, and must not bound its
@@ -332,10 +334,7 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64, bs 
 				continue // a bend's run says what it withheld (below)
 			}
 			pl := size(r)
-			z := math.Abs(pl.step) / pl.sigma
-			if math.IsNaN(z) {
-				z = 0
-			}
+			z := pl.z()
 			if z <= set.stepK() && z < worstZ {
 				worst, worstZ = r, z
 			}
@@ -389,7 +388,7 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64, bs 
 				continue
 			}
 		}
-		if set.trendWindow() > 0 && !(math.Abs(size) > set.stepK()*sigma) {
+		if set.trendWindow() > 0 && !(pl.z() > set.stepK()) {
 			// The interval jumps but the levels either side agree: a local
 			// disturbance of one or two stations (a bend the straight-line
 			// model misses), not current leaving or joining. (With the trend
@@ -534,6 +533,13 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64, bs 
 		}
 		f.Message += fmt.Sprintf("; levels either side %.*f A and %.*f A (%d and %d stations)",
 			dec, pl.before, dec, pl.after, pl.nBefore, pl.nAfter)
+		if len(pl.partial) == 2 {
+			f.Message += fmt.Sprintf("; %s and %s, either side of it, both read part of the change (the point where the current changes lies between them, seen by both), so the levels are fitted with the width of the transition free", label(pl.partial[0]), label(pl.partial[1]))
+		}
+		if !(math.Abs(size) > set.stepK()*sigma) {
+			f.Message += fmt.Sprintf("; as a sharp step the change is %s A, beyond %s sigma, but its size depends on how wide the transition is, which these stations do not fix",
+				pm(math.Abs(pl.sharpStep), pl.sharpSigma), strconv.FormatFloat(set.stepK(), 'g', 3, 64))
+		}
 		if resolved {
 			f.Message += fmt.Sprintf("; most likely at chainage %s m", pm(pl.at, pl.atSigma))
 		}

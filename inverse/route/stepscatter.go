@@ -42,7 +42,9 @@ import "math"
 // with the n - 5 degrees of freedom the step model leaves, zero when the
 // stations do not scatter about it beyond their sigmas) and widened for
 // those few degrees of freedom (shortWidening); it replaces the first when
-// smaller.
+// smaller. Where the two stations beside the step both read part of it,
+// the scatter is taken about whichever of the step and the levels beyond
+// those two (partial.go) leaves less.
 
 // stepGridX and stepGridH are the grid of the one-step fit: positions of
 // x_f within each interval, and widths (0, a sharp step, and a logarithmic
@@ -83,21 +85,33 @@ func stepScatter(u []*Placed, raw, k float64) (tau, widen float64, ok bool) {
 		return 0, 1, false
 	}
 	// The scatter about the step: fitted to the stations' own sigmas,
-	// then again with the scatter found added to them.
-	for i := range pts {
-		pts[i].w = 1 / (pts[i].s * pts[i].s)
-	}
-	_, _, best := stepFit(pts)
-	t2 := excessDOF(pts, &best, dof)
-	if t2 > 0 {
+	// then again with the scatter found added to them. Where the two
+	// stations beside a sharp step read part of it (partial.go), the
+	// scatter is also taken about the levels beyond them (the same n - 5
+	// degrees of freedom), and the smaller kept: those two stations'
+	// partial readings are the step's, not scatter.
+	about := func(t2 float64) float64 {
 		for i := range pts {
 			pts[i].w = 1 / (pts[i].s*pts[i].s + t2)
 		}
-		_, _, best = stepFit(pts)
+		_, _, best := stepFit(pts)
+		p, ok := partialFit(pts, best.xf)
+		ok = ok && p.reads()
 		for i := range pts {
 			pts[i].w = 1 / (pts[i].s * pts[i].s)
 		}
-		t2 = excessDOF(pts, &best, dof)
+		t := excessDOF(pts, &best, dof)
+		if ok {
+			for i := range p.rest {
+				p.rest[i].w = 1 / (p.rest[i].s * p.rest[i].s)
+			}
+			t = math.Min(t, excessDOF(p.rest, &p.fit, dof))
+		}
+		return t
+	}
+	t2 := about(0)
+	if t2 > 0 {
+		t2 = about(t2)
 	}
 	if !(t2 > 0) {
 		return 0, 1, true
