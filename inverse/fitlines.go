@@ -704,6 +704,11 @@ func (f *fitter) fitK(k int, prev *candidate) (*candidate, error) {
 	if err != nil {
 		return nil, wrapf(err, "fitting %d line(s)", k)
 	}
+	if k == 1 {
+		// Weak lines: seeds read off the anomaly can all start in the noise's
+		// basins (see crossingScan).
+		best = f.scanned(best)
+	}
 	if k == 2 && prev != nil && (!f.atNoise(best.sp, best.rss) || collapsed(best.sp, best.x)) {
 		// The fit misses the readings' noise, or its lines collapsed: try the
 		// starts that place one line above the other too (see stackedStarts),

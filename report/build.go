@@ -654,12 +654,29 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute boo
 	// is not resolved (a phantom 33 m down at -54 ± 62 A beside a clean
 	// 20 A cable, fitted with --count 2) says nothing of the others.
 	weak := g.OK && noLineCurrent(res.Sources, ac) && pair == nil
+	// A lone line a few centimetres from the sensors with a current just
+	// over 3 sigma, or one whose fall in chi-square noise reaches at some
+	// place along the readings: noise, not a conductor (nearSensorProblem,
+	// undetectedProblem).
+	var near string
+	if g.OK && !weak && pair == nil {
+		near = nearSensorProblem(f, res, ac)
+		if near == "" {
+			near = undetectedProblem(f, res, ac)
+		}
+	}
+	// Nor is a line above the ground given a buried conductor.
+	var above string
+	var aboveFail bool
+	if len(res.Sources) > 0 && g.OK && !weak && near == "" {
+		above, aboveFail = aboveGroundProblem(res, &res.Sources[0])
+	}
 	// A single traverse whose line angles the readings do not determine,
 	// where holding them perpendicular and level misses the readings by
 	// more than chance allows (inverse.HeldAnglesRejectedNote): the current
 	// and position are biased beyond their sigmas.
 	held := heldRejected(res.Notes)
-	if weak || held != "" {
+	if weak || near != "" || aboveFail || held != "" {
 		g.OK = false
 	}
 	switch {
@@ -670,13 +687,17 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute boo
 	case g.OK && anglesApproximate(res.Notes) != "":
 		g.Problem = anglesApproximate(res.Notes)
 	case weak:
-		s := res.Sources[0]
-		g.Problem = fmt.Sprintf("no current found: the strongest line's current, %s A, is within %.3g sigma of zero (no conductor under this group, or too weak a signal), so its position and depth mean nothing",
-			PlusMinus(s.Current, s.CurrentSigma), currentK(ac))
+		g.Problem = noCurrentProblem(f, res, &res.Sources[0], ac)
+	case near != "":
+		g.Problem = near
+	case aboveFail:
+		g.Problem = "the fit failed: " + above
 	case !g.OK:
 		g.Problem = "the fit did not converge (" + g.Status + ")"
 	case f.Problem != nil && f.Problem.Sigma == 0 && res.DOF < MinDOF:
 		g.Problem = fewDOF(res.DOF)
+	case above != "":
+		g.Problem = above
 	default:
 		g.Problem = ambiguity(res.Criteria)
 	}
