@@ -743,6 +743,12 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			return nil, err
 		}
 		doc.Inputs = append(doc.Inputs, fileInput("survey", path, s.Len()))
+		if !sv.ac {
+			// An AC log located without --freq (dcalternating.go).
+			if w := alternatingWarning(path, s); w != "" {
+				sv.alerts = append(sv.alerts, w)
+			}
+		}
 		// Demodulation takes no context either.
 		if _, err := await(ctx, func() (struct{}, error) { return struct{}{}, addReadings(o, sv, index, s) }); err != nil {
 			return nil, err
