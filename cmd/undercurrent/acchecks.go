@@ -103,23 +103,48 @@ type freqEstimate struct {
 }
 
 // freqMean is the inverse-variance mean of the per-window frequencies fs
-// with weights ws (1/sigma²), its sigma widened by the square root of the
-// reduced chi-square when they scatter more than their sigmas say. A
-// window whose fit wandered to another tone would pull the mean, so
-// estimates over 10 of their own sigmas from the median are dropped first.
-// ok is false with fewer than freqCheckMinWindows windows.
-func freqMean(fs, ws []float64) (mean, sigma float64, n int, ok bool) {
+// with weights ws (1/sigma²), from windows of window seconds, seg naming
+// the stretch of windows walked one way (a traverse) each belongs to.
+//
+// A window whose fit wandered to another tone would pull the mean, so a
+// window is dropped first when its frequency lies beyond both 10 of its
+// own sigmas and a quarter of 1/window from the median (the windows' fits
+// do not follow a tone further off, see demodulateAC). The cut is no
+// tighter because of the walk: where conductors of different phase
+// overlap, the phase of the field changes along a traverse, and a walking
+// sensor's windows seem to run off the frequency by hundredths to tenths
+// of a hertz, hundreds of their own sigmas, with the sign of the walking
+// direction; the mean of the two ways cancels that only when both keep
+// the same windows. A cut at 10 sigmas kept 9 of 160 windows of a
+// three-phase circuit at 50.05 Hz, a biased few, and put the estimate
+// 0.004 Hz off, 2 of its sigmas (found in review).
+//
+// The sigma is the noise's, sum(ws)^(-1/2), widened by the square root of
+// a reduced chi-square: that of the stretches' own means about the mean
+// when there are two or more (traverses walked the same way see the same
+// walk's share, so what they disagree by beyond their noise is the grid
+// wandering or the traverses differing), else that of the windows (the
+// walk's share then counts in full). ok is false with fewer than
+// freqCheckMinWindows windows.
+func freqMean(fs, ws []float64, seg []int, window float64) (mean, sigma float64, n int, ok bool) {
 	if len(fs) < freqCheckMinWindows {
 		return 0, 0, 0, false
 	}
 	sorted := append([]float64(nil), fs...)
 	sort.Float64s(sorted)
 	med := sorted[len(sorted)/2]
+	keep := func(i int) bool {
+		d := math.Abs(fs[i] - med)
+		return d*math.Sqrt(ws[i]) <= 10 || !(window > 0) || d <= 0.25/window
+	}
 	var sw, swf float64
+	segW, segWF := map[int]float64{}, map[int]float64{}
 	for i, f := range fs {
-		if math.Abs(f-med)*math.Sqrt(ws[i]) <= 10 {
+		if keep(i) {
 			sw += ws[i]
 			swf += ws[i] * f
+			segW[seg[i]] += ws[i]
+			segWF[seg[i]] += ws[i] * f
 			n++
 		}
 	}
@@ -128,23 +153,33 @@ func freqMean(fs, ws []float64) (mean, sigma float64, n int, ok bool) {
 	}
 	mean = swf / sw
 	var c2 float64
-	for i, f := range fs {
-		if d := f - med; math.Abs(d)*math.Sqrt(ws[i]) <= 10 {
-			c2 += (f - mean) * (f - mean) * ws[i]
+	dof := n - 1
+	if len(segW) >= 2 {
+		for k, w := range segW {
+			m := segWF[k] / w
+			c2 += (m - mean) * (m - mean) * w
+		}
+		dof = len(segW) - 1
+	} else {
+		for i, f := range fs {
+			if keep(i) {
+				c2 += (f - mean) * (f - mean) * ws[i]
+			}
 		}
 	}
-	return mean, math.Sqrt(math.Max(1, c2/float64(n-1)) / sw), n, true
+	return mean, math.Sqrt(math.Max(1, c2/float64(dof)) / sw), n, true
 }
 
 // estimateWindowFreq combines the per-window frequencies of a
-// demodulation with EstimateFreq, from the windows with a clear signal
-// (freqCheckSNR on the strongest axis). Windows are sorted by the way the
-// sensor moved (the sign of their travel along the survey's main walking
-// direction, or standing still): with windows walked both ways the
-// estimate is the mean of the two ways' (cancelling the walking's share,
-// see freqEstimate.trusted); with the sensor still, theirs; else the mean
-// of all, not trusted. ok is false when too few windows qualify.
-func estimateWindowFreq(ws []calibrate.Window) (est freqEstimate, ok bool) {
+// demodulation with EstimateFreq in windows of window seconds, from the
+// windows with a clear signal (freqCheckSNR on the strongest axis).
+// Windows are sorted by the way the sensor moved (the sign of their travel
+// along the survey's main walking direction, or standing still): with
+// windows walked both ways the estimate is the mean of the two ways'
+// (cancelling the walking's share, see freqEstimate.trusted); with the
+// sensor still, theirs; else the mean of all, not trusted (see freqMean).
+// ok is false when too few windows qualify.
+func estimateWindowFreq(ws []calibrate.Window, window float64) (est freqEstimate, ok bool) {
 	// The main walking direction: the principal axis of the windows'
 	// horizontal travels.
 	var sxx, sxy, syy float64
@@ -157,7 +192,10 @@ func estimateWindowFreq(ws []calibrate.Window) (est freqEstimate, ok bool) {
 	th := 0.5 * math.Atan2(2*sxy, sxx-syy)
 	dx, dy := math.Cos(th), math.Sin(th)
 	var fs, wt [3][]float64 // still, one way, the other
+	var sg [3][]int         // the stretch walked one way each window is in
 	var all, allW []float64
+	var allS []int
+	stretch, prevC, prevG := 0, -1, ""
 	for _, w := range ws {
 		if !(w.FreqSigma > 0) || math.IsNaN(w.Freq) {
 			continue
@@ -179,22 +217,28 @@ func estimateWindowFreq(ws []calibrate.Window) (est freqEstimate, ok bool) {
 				c = 2
 			}
 		}
+		if c != prevC || w.Group != prevG {
+			stretch++
+			prevC, prevG = c, w.Group
+		}
 		fs[c] = append(fs[c], w.Freq)
 		wt[c] = append(wt[c], wgt)
+		sg[c] = append(sg[c], stretch)
 		all = append(all, w.Freq)
 		allW = append(allW, wgt)
+		allS = append(allS, stretch)
 	}
-	f1, s1, n1, ok1 := freqMean(fs[1], wt[1])
-	f2, s2, n2, ok2 := freqMean(fs[2], wt[2])
+	f1, s1, n1, ok1 := freqMean(fs[1], wt[1], sg[1], window)
+	f2, s2, n2, ok2 := freqMean(fs[2], wt[2], sg[2], window)
 	if ok1 && ok2 {
 		return freqEstimate{freq: (f1 + f2) / 2, sigma: math.Hypot(s1, s2) / 2, windows: n1 + n2, trusted: true}, true
 	}
 	if len(fs[1])+len(fs[2]) == 0 {
-		f, sg, n, ok := freqMean(fs[0], wt[0])
-		return freqEstimate{freq: f, sigma: sg, windows: n, trusted: true}, ok
+		f, sgm, n, ok := freqMean(fs[0], wt[0], sg[0], window)
+		return freqEstimate{freq: f, sigma: sgm, windows: n, trusted: true}, ok
 	}
-	f, sg, n, ok := freqMean(all, allW)
-	return freqEstimate{freq: f, sigma: sg, windows: n}, ok
+	f, sgm, n, ok := freqMean(all, allW, allS, window)
+	return freqEstimate{freq: f, sigma: sgm, windows: n}, ok
 }
 
 // stillTravel is the horizontal half-travel, m, below which a window is
@@ -451,7 +495,7 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 		// worth a warning, not the run.
 		return res, win, append(res.Warnings, fmt.Sprintf("the AC frequency could not be checked (%v): the results assume the field runs at exactly %g Hz", err, o.freq)), nil, nil
 	}
-	est, ok := estimateWindowFreq(fit.Windows)
+	est, ok := estimateWindowFreq(fit.Windows, win)
 	if !ok {
 		return res, win, append(res.Warnings, fmt.Sprintf("the AC frequency could not be checked: fewer than %d windows have a clear signal (the field %d times its noise on some axis), for example with a stronger field at another frequency nearby; the results assume the field runs at exactly %g Hz", freqCheckMinWindows, freqCheckSNR, o.freq)), nil, nil
 	}
@@ -545,7 +589,7 @@ func groupWander(ws []calibrate.Window, freq, window float64) map[string]float64
 	}
 	bad := map[string]float64{}
 	for _, k := range keys {
-		est, ok := estimateWindowFreq(by[k])
+		est, ok := estimateWindowFreq(by[k], window)
 		if !ok {
 			continue
 		}

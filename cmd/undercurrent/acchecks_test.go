@@ -358,19 +358,19 @@ func TestEstimateWindowFreq(t *testing.T) {
 	var ws []calibrate.Window
 	ws = append(ws, syntheticWindows("T01", 0, 30, 50.004, sigma, 1)...)
 	ws = append(ws, syntheticWindows("T02", 10, 10, 49.996, sigma, -1)...)
-	est, ok := estimateWindowFreq(ws)
+	est, ok := estimateWindowFreq(ws, 0.2)
 	if !ok || !est.trusted || math.Abs(est.freq-50) > 1e-9 || est.windows != 40 {
 		t.Errorf("both ways: %+v, %v; want 50 Hz from 40 windows, trusted", est, ok)
 	}
 	// One way: the plain inverse-variance mean, sigma/sqrt(n), widened by
 	// the square root of the reduced chi-square, here n/(n-1) (every
 	// window one sigma from the mean): sigma/sqrt(n-1).
-	est, ok = estimateWindowFreq(ws[:30])
+	est, ok = estimateWindowFreq(ws[:30], 0.2)
 	if !ok || est.trusted || math.Abs(est.freq-50.004) > 1e-9 || math.Abs(est.sigma-sigma/math.Sqrt(29)) > 1e-12 {
 		t.Errorf("one way: %+v, %v; want 50.004 ± %.3g Hz, not trusted", est, ok, sigma/math.Sqrt(29))
 	}
 	still := syntheticWindows("S", 0, 6, 50.1, sigma, 0)
-	est, ok = estimateWindowFreq(still)
+	est, ok = estimateWindowFreq(still, 0.2)
 	if !ok || !est.trusted || math.Abs(est.freq-50.1) > 1e-9 {
 		t.Errorf("still: %+v, %v; want 50.1 Hz, trusted", est, ok)
 	}
@@ -378,7 +378,7 @@ func TestEstimateWindowFreq(t *testing.T) {
 	for i := range still {
 		still[i].B = [3]complex128{10, 0, 0}
 	}
-	if est, ok = estimateWindowFreq(still); ok {
+	if est, ok = estimateWindowFreq(still, 0.2); ok {
 		t.Errorf("windows at 10 sigma gave an estimate: %+v", est)
 	}
 }

@@ -417,6 +417,10 @@ type group struct {
 	windowN []float64       // AC: each window's sample count
 	wsigma  []float64       // AC: the windows' noise per axis (calibrate.Window.Sigma), nT
 	hint    float64         // AC: the offset of the group's own frequency, Hz, where the ramp search starts; 0 for none
+	// estimated is set (AC) when the group was demodulated at a frequency
+	// estimated from the log, not the one given: off by about the
+	// estimate's sigma, so the ramp is always searched for (fitRamp).
+	estimated bool
 }
 
 // problem is the group's readings as an inverse problem.
@@ -740,6 +744,12 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			return nil, err
 		}
 		doc.Inputs = append(doc.Inputs, fileInput("survey", path, s.Len()))
+		if !sv.ac {
+			// An AC log located without --freq (dcalternating.go).
+			if w := alternatingWarning(path, s); w != "" {
+				sv.alerts = append(sv.alerts, w)
+			}
+		}
 		// Demodulation takes no context either.
 		if _, err := await(ctx, func() (struct{}, error) { return struct{}{}, addReadings(o, sv, index, s) }); err != nil {
 			return nil, err
@@ -1245,6 +1255,7 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 			}
 		}
 		g.hint = hints[w.Group]
+		g.estimated = res.Freq != o.freq
 		g.travel = append(g.travel, 2*math.Sqrt(w.Travel[0]*w.Travel[0]+w.Travel[1]*w.Travel[1]+w.Travel[2]*w.Travel[2]))
 	}
 	return nil

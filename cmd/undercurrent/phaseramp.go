@@ -128,6 +128,15 @@ func rampStep(res *inverse.Result, ts []float64, mid float64) (a, sigma float64,
 // the linearised step finds from 0, while a group whose windows' phases
 // turn because conductors of different phase overlap along it (the
 // windows then seem to run 0.03 Hz off, walked one way) fits worse there.
+//
+// The ramp is searched with the group's line count held, and also with
+// one line fewer: without a ramp the count may already hold an extra line
+// that absorbs the turn (an 11 A line at 1.8 m beside a three-phase
+// circuit 1 mHz off the frequency demodulated at, whose ramp then seemed
+// too weak to search for; found in review), so that the ramp only pays
+// for itself once that line goes. Each search's ramp is refitted with the
+// count chosen afresh, and the one that lowers the information criterion
+// most is kept.
 func fitRamp(g *group, set *inverse.Settings, noise float64) {
 	res := g.res
 	if g.err != nil || res == nil || len(res.Sources) == 0 || len(g.times) < rampMinWindows ||
@@ -151,8 +160,6 @@ func fitRamp(g *group, set *inverse.Settings, noise float64) {
 			count++
 		}
 	}
-	held := *set
-	held.Count = max(count, 1)
 	fitAt := func(hz float64, s *inverse.Settings) (*inverse.Result, float64) {
 		p := g.problem(true, noise)
 		p.Phasors = turned(g.phasors, g.times, hz, mid)
@@ -162,16 +169,67 @@ func fitRamp(g *group, set *inverse.Settings, noise float64) {
 		}
 		return r, rss(r)
 	}
-	s0 := rss(res) // res has held.Count lines
-	centre, sc, rc := 0.0, s0, res
+	// The criterion: a refit's residual against the fit without a ramp,
+	// each with the parameters it took (the ramp one more).
+	n := 6 * len(g.phasors)
+	s0 := rss(res)
+	k0 := n - res.DOF
+	gainOf := func(r1 *inverse.Result) (gain, cost float64) {
+		if noise > 0 {
+			gain = (s0 - rss(r1)) / (res.Sigma * res.Sigma)
+		} else {
+			gain = float64(n) * math.Log(s0/rss(r1))
+		}
+		return gain, float64(n-r1.DOF+1-k0) * math.Log(float64(n))
+	}
+	var keep *inverse.Result
+	var keepHz, keepSigma, keepGain float64
+	for c := max(count, 1); c >= max(count-1, 1); c-- {
+		held := *set
+		held.Count = c
+		r0 := res // res has count lines
+		if c != count {
+			if r0, _ = fitAt(0, &held); r0 == nil {
+				continue
+			}
+		}
+		best, sigmaHz, ok := rampSearch(g, r0, &held, fitAt, mid, span, noise)
+		if !ok {
+			continue
+		}
+		r1, _ := fitAt(best, set)
+		if r1 == nil {
+			continue
+		}
+		gain, cost := gainOf(r1)
+		if gain > cost && (keep == nil || gain-cost > keepGain) {
+			keep, keepHz, keepSigma, keepGain = r1, best, sigmaHz, gain-cost
+		}
+	}
+	if keep == nil {
+		return
+	}
+	g.res0, g.res = res, keep
+	g.ramp = &groupRamp{hz: keepHz, sigma: keepSigma, mid: mid, turn: 360 * keepHz * span}
+	keep.Notes = append(keep.Notes, fmt.Sprintf("the phase turned %.2g° across the group (%.3g s): fitted as a frequency offset of %s Hz from the one demodulated at, the field's frequency being off it or wandering; phases are those at the group's middle", g.ramp.turn, span, plusMinusHz(keepHz, keepSigma)))
+}
+
+// rampSearch searches for g's ramp with the line count of held, starting
+// from r0 (g's fit at that count without a ramp): the ramp, Hz, and its
+// sigma; ok is false when there is none worth keeping (too weak to search
+// for, no minimum found, no better than r0, or within rampSigmas of its
+// sigma of 0). fitAt fits g's phasors turned back by a ramp about mid.
+func rampSearch(g *group, r0 *inverse.Result, held *inverse.Settings, fitAt func(float64, *inverse.Settings) (*inverse.Result, float64), mid, span, noise float64) (best, sigmaHz float64, ok bool) {
+	s0 := rss(r0)
+	centre, sc, rc := 0.0, s0, r0
 	if g.hint != 0 {
-		if r, s := fitAt(g.hint, &held); s < s0 {
+		if r, s := fitAt(g.hint, held); s < s0 {
 			centre, sc, rc = g.hint, s, r
 		}
 	}
 	a, sa, ok := rampStep(rc, g.times, mid)
-	if !ok || (centre == 0 && math.Abs(a) < rampScreen*sa) {
-		return
+	if !ok || (centre == 0 && !g.estimated && math.Abs(a) < rampScreen*sa) {
+		return 0, 0, false
 	}
 	// The step: the linearised estimate, at least three of its sigmas (so
 	// that the parabola's curvature stands above the fits' rounding) and at
@@ -187,12 +245,13 @@ func fitRamp(g *group, set *inverse.Settings, noise float64) {
 	// traverses, where the geometry absorbs much of the turn; found in
 	// review, when one parabola was all).
 	var c float64
-	best, found := centre, false
+	found := false
+	best = centre
 	for range rampSearchSteps {
-		_, s1 := fitAt(centre+d, &held)
-		_, s2 := fitAt(centre+2*d, &held)
+		_, s1 := fitAt(centre+d, held)
+		_, s2 := fitAt(centre+2*d, held)
 		if math.IsInf(s1, 0) || math.IsInf(s2, 0) {
-			return
+			return 0, 0, false
 		}
 		c = (s2 - 2*s1 + sc) / 2
 		b := s1 - sc - c
@@ -211,45 +270,26 @@ func fitRamp(g *group, set *inverse.Settings, noise float64) {
 			break
 		}
 		centre = next
-		if _, sc = fitAt(centre, &held); math.IsInf(sc, 0) {
-			return
+		if _, sc = fitAt(centre, held); math.IsInf(sc, 0) {
+			return 0, 0, false
 		}
 	}
 	if !found || !(c > 0) {
-		return
+		return 0, 0, false
 	}
-	_, sb := fitAt(best, &held)
+	_, sb := fitAt(best, held)
 	if !(sb < s0) {
-		return
+		return 0, 0, false
 	}
-	sigma2 := res.Sigma * res.Sigma
+	sigma2 := r0.Sigma * r0.Sigma
 	if noise == 0 {
-		sigma2 = sb / float64(res.DOF-1)
+		sigma2 = sb / float64(r0.DOF-1)
 	}
-	sigmaHz := math.Sqrt(sigma2/c) * math.Abs(d)
+	sigmaHz = math.Sqrt(sigma2/c) * math.Abs(d)
 	if !(math.Abs(best) > rampSigmas*sigmaHz) {
-		return
+		return 0, 0, false
 	}
-	r1, _ := fitAt(best, set)
-	if r1 == nil {
-		return
-	}
-	// The criterion: the refit's residual against the fit without a ramp,
-	// each with the parameters it took (the ramp one more).
-	n := 6 * len(g.phasors)
-	k0, k1 := n-res.DOF, n-r1.DOF+1
-	var gain float64
-	if noise > 0 {
-		gain = (s0 - rss(r1)) / (res.Sigma * res.Sigma)
-	} else {
-		gain = float64(n) * math.Log(s0/rss(r1))
-	}
-	if !(gain > float64(k1-k0)*math.Log(float64(n))) {
-		return
-	}
-	g.res0, g.res = res, r1
-	g.ramp = &groupRamp{hz: best, sigma: sigmaHz, mid: mid, turn: 360 * best * span}
-	r1.Notes = append(r1.Notes, fmt.Sprintf("the phase turned %.2g° across the group (%.3g s): fitted as a frequency offset of %s Hz from the one demodulated at, the field's frequency being off it or wandering; phases are those at the group's middle", g.ramp.turn, span, plusMinusHz(best, sigmaHz)))
+	return best, sigmaHz, true
 }
 
 // dropWalkRamps takes back small ramps that turn with the walking
@@ -300,7 +340,17 @@ func sub3(a, b [3]float64) [3]float64 { return [3]float64{a[0] - b[0], a[1] - b[
 
 // wanderWarning names the groups whose fitted ramp turned the phase more
 // than freqCheckDegrees across them: the field's frequency was off the one
-// demodulated at, or wandered. "" when none did.
+// demodulated at, or wandered. "" when none did. When every group that
+// could take a ramp took one, two or more, and their offsets agree within
+// their sigmas (steadyRamps), the field ran steadily off that frequency
+// and the warning says so, with the frequency the ramps put it at: a
+// frequency estimated from the windows can be off by more than its sigma
+// (the walk over conductors of different phase leaves a small share of
+// its own in the windows' frequencies that walking both ways does not
+// cancel: 0.002 Hz, 30 of its sigmas, for two cables 120° apart at 49.8 Hz
+// demodulated first at 50 Hz, found in review), while the ramps come from
+// the lines' own phasors, whose model holds the phase changing along a
+// traverse.
 func wanderWarning(sv *survey) string {
 	var keys []string
 	var worst float64
@@ -320,8 +370,55 @@ func wanderWarning(sv *survey) string {
 	if n > 8 {
 		keys = append(keys[:8], "...")
 	}
+	f := sv.doc.Signal.FrequencyHz
+	if off, sigma, estimated, ok := steadyRamps(sv.groups); ok && n >= 2 {
+		dec := freqDecimals(sigma)
+		why := ""
+		if estimated {
+			why = fmt.Sprintf(", so the frequency estimated from single windows was off by %s Hz (the walk over conductors of different phase, or the signal's harmonics, can bias single windows beyond their sigmas; the lines' fits hold the phase changing along a traverse)", plusMinusHz(-off, sigma))
+		}
+		return fmt.Sprintf("in %d group(s) the AC frequency differs from the %.4f Hz demodulated at by the same %s Hz (their phase ramps agree): the field ran steadily at %.*f ± %.*f Hz%s; each of those groups was fitted with a phase ramp, its frequency offset in the group's notes (%s)",
+			n, f, plusMinusHz(off, sigma), dec, f+off, dec, sigma, why, strings.Join(keys, ", "))
+	}
 	return fmt.Sprintf("in %d group(s) the AC frequency differs from the %.4f Hz demodulated at (by up to %+.4f Hz): the frequency was off or wandered during the survey; each of those groups was fitted with a phase ramp, its frequency offset in the group's notes (%s)",
-		n, sv.doc.Signal.FrequencyHz, worst, strings.Join(keys, ", "))
+		n, f, worst, strings.Join(keys, ", "))
+}
+
+// steadyRamps reports whether every AC group that could take a ramp (a fit
+// with rampMinWindows windows) took one and the ramps agree: their
+// reduced chi-square about their inverse-variance mean within 3 of its
+// own sigmas of 1 (sqrt(2/(n-1))). off is that mean, Hz, sigma its sigma
+// widened by the square root of the reduced chi-square; estimated is set
+// when the groups were demodulated at a frequency estimated from the log.
+func steadyRamps(groups []*group) (off, sigma float64, estimated, ok bool) {
+	var sw, swf float64
+	var hz, w []float64
+	for _, g := range groups {
+		if g.err != nil || g.res == nil || len(g.times) < rampMinWindows {
+			continue
+		}
+		if g.ramp == nil || !(g.ramp.sigma > 0) {
+			return 0, 0, false, false
+		}
+		wt := 1 / (g.ramp.sigma * g.ramp.sigma)
+		hz, w = append(hz, g.ramp.hz), append(w, wt)
+		sw += wt
+		swf += wt * g.ramp.hz
+		estimated = estimated || g.estimated
+	}
+	if len(hz) < 2 {
+		return 0, 0, false, false
+	}
+	off = swf / sw
+	var c2 float64
+	for i := range hz {
+		c2 += (hz[i] - off) * (hz[i] - off) * w[i]
+	}
+	dof := float64(len(hz) - 1)
+	if c2/dof > 1+3*math.Sqrt(2/dof) {
+		return 0, 0, false, false
+	}
+	return off, math.Sqrt(math.Max(1, c2/dof) / sw), estimated, true
 }
 
 // plusMinusHz writes a frequency offset and its sigma to two significant
