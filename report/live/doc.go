@@ -31,9 +31,12 @@
 // Sample times are Unix seconds. A batch with a time before 2000-01-01,
 // or more than MaxAhead (1 h by default) ahead of the broker's clock when
 // it was stored (a gateway sending milliseconds), is dead-lettered as
-// malformed before it can touch the sensor's state. Batches that start at
-// or before a sensor's last sample are dead-lettered as out-of-order;
-// batches entirely inside published windows as late. A message is
+// malformed before it can touch the sensor's state. A batch that
+// straddles a sensor's last sample (data sent again with other batch
+// edges) loses the samples at or before it, counted in
+// uc_overlap_samples_total, and the rest are filed; a batch with no sample
+// after it is dead-lettered as out-of-order, and one entirely inside
+// published windows as late. A message is
 // dead-lettered once: the checkpoint counts it as examined as soon as its
 // dead letter is stored (and is written then if no window is open), and
 // a later holder that reads it again to rebuild an open window counts it

@@ -66,6 +66,9 @@ type assetWorker struct {
 	// unreadable is when the data stream first failed to answer in a
 	// row (zero once it answers).
 	unreadable time.Time
+	// overlapLogged is when each sensor's overlapping data was last
+	// logged (see noteOverlap).
+	overlapLogged map[string]time.Time
 }
 
 func (s *Service) newAssetWorker(a *AssetConfig) (*assetWorker, error) {
@@ -411,7 +414,7 @@ func (w *assetWorker) handle(m jetstream.Msg) error {
 		return w.refuseRejected(t0)
 	case outOfOrder:
 		return w.deadLetter(broker.ReasonOutOfOrder, subj, seq, data,
-			fmt.Errorf("live: %s: batch starts at %v, not after the sensor's last sample", subj, b.Time[0]))
+			fmt.Errorf("live: %s: batch from %v to %v is not after the sensor's last sample (%v)", subj, b.Time[0], b.Time[b.Len()-1], w.asm.water[si]))
 	case late:
 		if replayed {
 			met.messages.WithLabelValues(w.asset.Name, "skipped").Inc()
@@ -422,11 +425,33 @@ func (w *assetWorker) handle(m jetstream.Msg) error {
 	}
 	w.lastData, w.silent = t0, false
 	met.messages.WithLabelValues(w.asset.Name, "accepted").Inc()
-	met.samples.WithLabelValues(w.asset.Name).Add(float64(b.Len()))
+	met.samples.WithLabelValues(w.asset.Name).Add(float64(b.Len() - w.asm.overlap))
+	if k := w.asm.overlap; k > 0 {
+		w.noteOverlap(sensor, subj, seq, k, b)
+	}
 	if err := w.refuseRejected(t0); err != nil {
 		return err
 	}
 	return w.closeReady(t0, 0)
+}
+
+// overlapLogEvery is how often, at most, an overlap of one sensor's data
+// is logged (every one is counted in uc_overlap_samples_total).
+const overlapLogEvery = time.Minute
+
+// noteOverlap counts the k samples of a batch (b, as sent) that repeated
+// what its sensor had already sent, dropped by the assembler while the
+// rest were filed, and logs it once per overlapLogEvery per sensor.
+func (w *assetWorker) noteOverlap(sensor, subj string, seq uint64, k int, b *broker.Batch) {
+	w.svc.met.overlap.WithLabelValues(w.asset.Name).Add(float64(k))
+	if w.overlapLogged == nil {
+		w.overlapLogged = map[string]time.Time{}
+	}
+	if now := time.Now(); now.Sub(w.overlapLogged[sensor]) >= overlapLogEvery {
+		w.overlapLogged[sensor] = now
+		w.log.Info("batch overlaps data already received: the repeated samples are dropped, the rest kept (logged once a minute per sensor; counted in uc_overlap_samples_total)",
+			"subject", subj, "seq", seq, "repeated", k, "kept", b.Len()-k, "start", b.Time[0])
+	}
 }
 
 // silenceAtStart returns, for a worker taking the asset, when its data
