@@ -142,7 +142,7 @@ func runServe(ctx context.Context, o *serveOptions, args []string, stderr io.Wri
 
 // embeddedConfig turns the site's [broker] table into the embedded server's settings.
 func embeddedConfig(site *live.Site, dir string) (broker.ServerConfig, error) {
-	cfg := broker.ServerConfig{StoreDir: dir, Name: "undercurrent", Token: site.Broker.Token}
+	cfg := broker.ServerConfig{StoreDir: dir, Name: "undercurrent", Token: site.Broker.Token, MaxStore: site.Broker.StoreMaxBytes}
 	host, port, err := splitAddr(site.Broker.Listen, "broker.listen")
 	if err != nil {
 		return cfg, err

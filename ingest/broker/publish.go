@@ -17,10 +17,11 @@ import (
 // Header names used on pipeline messages.
 const (
 	HeaderContentType = "Content-Type"
-	HeaderReason      = "Uc-Reason"  // dead letters: why the message was refused
-	HeaderError       = "Uc-Error"   // dead letters: the full error text
-	HeaderSubject     = "Uc-Subject" // dead letters: the subject it arrived on
-	HeaderSequence    = "Uc-Seq"     // dead letters: its sequence in UC_DATA
+	HeaderReason      = "Uc-Reason"    // dead letters: why the message was refused
+	HeaderError       = "Uc-Error"     // dead letters: the full error text
+	HeaderSubject     = "Uc-Subject"   // dead letters: the subject it arrived on
+	HeaderSequence    = "Uc-Seq"       // dead letters: its sequence in UC_DATA
+	HeaderTruncated   = "Uc-Truncated" // dead letters: the payload's size in bytes, when only its start is kept
 )
 
 // PublishBatch publishes b on uc.data.<asset>.<sensor> through JetStream and
@@ -110,13 +111,19 @@ func publishRetryable(err error) bool {
 }
 
 // DeadLetter stores a refused message on uc.dlq.<reason> with its reason,
-// error and original subject in headers and its payload unchanged. seq is
-// the message's sequence in UC_DATA (0 when it has none); it makes the
-// dead letter idempotent, so a message refused again after a takeover is
-// stored once.
-func DeadLetter(ctx context.Context, js jetstream.JetStream, reason, subject string, seq uint64, data []byte, cause error) error {
+// error and original subject in headers and its payload unchanged, or,
+// when keep > 0 and the payload is longer, its first keep bytes with its
+// full size in the Uc-Truncated header (an oversized message must not
+// take a bounded dead-letter stream's room). seq is the message's
+// sequence in UC_DATA (0 when it has none); it makes the dead letter
+// idempotent, so a message refused again after a takeover is stored once.
+func DeadLetter(ctx context.Context, js jetstream.JetStream, reason, subject string, seq uint64, data []byte, keep int, cause error) error {
 	msg := nats.NewMsg(DeadLetterSubject(reason))
 	msg.Data = data
+	if keep > 0 && len(data) > keep {
+		msg.Data = data[:keep]
+		msg.Header.Set(HeaderTruncated, strconv.Itoa(len(data)))
+	}
 	msg.Header.Set(HeaderReason, reason)
 	msg.Header.Set(HeaderSubject, subject)
 	if cause != nil {

@@ -178,10 +178,17 @@ func (s *Service) Run(ctx context.Context) error {
 	sctx, cancel := context.WithTimeout(ctx, 30*time.Second)
 	s.stores, err = broker.Setup(sctx, js, broker.StreamSettings{
 		Replicas: s.site.Broker.Replicas, DataMaxAge: s.site.Broker.DataRetention.Duration, DataMaxBytes: s.site.Broker.DataMaxBytes,
+		DeadLetterMaxBytes: s.site.Broker.DLQMaxBytes,
 		LeaseTTL: s.site.Service.LeaseTTL.Duration, Memory: s.memory})
 	cancel()
 	if err != nil {
 		return fmt.Errorf("live: %w", err)
+	}
+	if n := s.stores.DeadLetterMaxBytes; n > 0 {
+		s.log.Info("dead letters kept up to a bound, the oldest giving way", "stream", broker.StreamDeadLetter, "max_bytes", n, "max_age", broker.DeadLetterMaxAge)
+	} else {
+		s.log.Warn("the store cannot reserve room for a bounded dead-letter stream: refused messages are kept unbounded for their max age (set broker.dlq_max_bytes, or give the store more room)",
+			"stream", broker.StreamDeadLetter, "max_age", broker.DeadLetterMaxAge)
 	}
 	var srv *http.Server
 	if s.httpAddr != "-" {
@@ -413,6 +420,15 @@ func storeRefused(err error) bool {
 	return err != nil && strings.Contains(err.Error(), "insufficient resources")
 }
 
+// storeFullAdvice is the ERROR logged when the broker's store fills. The
+// embedded broker sizes its store once, when serve starts (from the disk
+// space free then, or broker.store_max_bytes), and the stream bounds are
+// set at start too: freeing disk space or changing those settings takes
+// effect only after a restart.
+const storeFullAdvice = "the broker's store is full: no lease, estimate or sensor batch can be stored until space is freed. " +
+	"The embedded broker sizes its store when serve starts: free disk space or raise broker.store_max_bytes, or lower broker.data_retention, " +
+	"broker.data_max_bytes or broker.dlq_max_bytes, then restart serve (a cluster's own limits are the nats-server configuration's)"
+
 // noteStore follows the outcome of a write to the broker: a write refused
 // for want of storage marks the store full (logged at ERROR, /readyz
 // failing, uc_store_full 1: leases cannot be renewed nor estimates stored,
@@ -429,7 +445,7 @@ func (s *Service) noteStore(err error) {
 		msg := err.Error()
 		if s.storeFull.Swap(&msg) == nil {
 			s.met.storeFull.Set(1)
-			s.log.Error("the broker's store is full: no lease, estimate or sensor batch can be stored until space is freed (raise the store's size, or lower broker.data_retention or set broker.data_max_bytes)", "err", err)
+			s.log.Error(storeFullAdvice, "err", err)
 		}
 	}
 }

@@ -86,6 +86,19 @@ type BrokerConfig struct {
 	// DataMaxBytes bounds the raw sensor batches kept, bytes: past it the
 	// oldest give way to new ones. 0 means no bound but data_retention.
 	DataMaxBytes int64 `toml:"data_max_bytes"`
+	// DLQMaxBytes bounds the dead letters kept (refused messages, stream
+	// UC_DLQ, seven days at most), bytes: past it the oldest give way.
+	// The broker reserves it in its store. 0 means a quarter of
+	// data_max_bytes (at least four times service.max_message_bytes, the
+	// most of a refused payload a dead letter keeps) when that is set,
+	// else 256 MiB, halved down to 4 MiB while the store cannot reserve
+	// it (a store smaller still leaves the dead letters unbounded).
+	DLQMaxBytes int64 `toml:"dlq_max_bytes"`
+	// StoreMaxBytes bounds the embedded broker's whole store, bytes; 0
+	// leaves the server's default, most of the disk space free when serve
+	// starts. Either way the bound is fixed at start: after freeing disk
+	// space or changing it, restart serve. Not used with --broker.
+	StoreMaxBytes int64 `toml:"store_max_bytes"`
 	// User and Password (or Token) are the credentials the service itself
 	// uses. Users lists the accounts of the embedded server; when it is
 	// non-empty, unauthenticated clients are refused.
@@ -309,6 +322,18 @@ func (s *Site) validate() error {
 	}
 	if s.Broker.DataMaxBytes < 0 {
 		return fmt.Errorf("broker.data_max_bytes %d: want 0 (no bound) or more", s.Broker.DataMaxBytes)
+	}
+	if s.Broker.StoreMaxBytes < 0 {
+		return fmt.Errorf("broker.store_max_bytes %d: want 0 (the server's default) or more", s.Broker.StoreMaxBytes)
+	}
+	minDLQ := 4 * int64(s.Service.MaxMessageBytes)
+	switch {
+	case s.Broker.DLQMaxBytes < 0:
+		return fmt.Errorf("broker.dlq_max_bytes %d: want 0 (the default) or more", s.Broker.DLQMaxBytes)
+	case s.Broker.DLQMaxBytes > 0 && s.Broker.DLQMaxBytes < minDLQ:
+		return fmt.Errorf("broker.dlq_max_bytes %d: want at least %d, four times service.max_message_bytes (the most of a refused message a dead letter keeps)", s.Broker.DLQMaxBytes, minDLQ)
+	case s.Broker.DLQMaxBytes == 0 && s.Broker.DataMaxBytes > 0:
+		s.Broker.DLQMaxBytes = max(s.Broker.DataMaxBytes/4, minDLQ)
 	}
 	if s.Broker.Replicas < 1 || s.Broker.Replicas > 5 {
 		return fmt.Errorf("broker.replicas %d: want 1 to 5", s.Broker.Replicas)

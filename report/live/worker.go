@@ -617,7 +617,7 @@ func (w *assetWorker) deadLetter(reason, subj string, seq uint64, data []byte, c
 	w.log.Warn("message refused", "reason", reason, "seq", seq, "err", cause)
 	ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
 	defer cancel()
-	if err := broker.DeadLetter(ctx, w.svc.stores.JS, reason, subj, seq, data, cause); err != nil {
+	if err := broker.DeadLetter(ctx, w.svc.stores.JS, reason, subj, seq, data, w.svc.site.Service.MaxMessageBytes, cause); err != nil {
 		return err
 	}
 	if seq > w.asm.lastSeq {
