@@ -188,7 +188,11 @@
 // wall time, once per silence: dated from the broker's time of the last
 // stored batch, and kept in the checkpoint for a successor), stuck (one value
 // repeated on an axis for a whole window), degraded (reduced chi-square
-// above max_chi2, or the solve failed). Each is published on
+// above max_chi2, or the solve failed), implausible (readings that do not
+// look like nanotesla: the Earth's field outside earth_field, subject
+// "earth-field", or with noise given a chi-square far below its degrees
+// of freedom, subject "chi2"; the estimate's quality is then
+// "implausible"). Each is published on
 // uc.alarm.<asset>.<kind> with message id "<asset>/<window>/<kind>/<subject>".
 //
 // # Queries

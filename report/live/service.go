@@ -80,6 +80,9 @@ type Service struct {
 	// noConsumerReset (tests) makes queries behave as against a broker
 	// without the consumer reset.
 	noConsumerReset atomic.Bool
+	// queryRetryHook, when set (tests), is called with each query step
+	// about to be tried again (see rangeQuery.again).
+	queryRetryHook atomic.Pointer[func(step string)]
 
 	// storeFull holds the error of the last write the broker refused for
 	// want of storage, until a write succeeds again (see noteStore).

@@ -135,11 +135,26 @@ type AssetConfig struct {
 	// is always set.
 	Start Start `toml:"start"`
 	// Noise is the sensor noise per sample, nT rms; 0 estimates it from
-	// the fit residuals.
-	Noise      float64           `toml:"noise"`
+	// the fit residuals. When given, a fit whose chi-square lies far below
+	// its degrees of freedom marks the window implausible (see
+	// chi2Implausible).
+	Noise float64 `toml:"noise"`
+	// EarthField is the range, nT, that the Earth's field seen by the
+	// sensors must lie in: the uniform background fitted with the currents
+	// (DC), or the median of the sensors' mean total fields (AC).
+	// Outside it the window is marked implausible (fields in the wrong
+	// unit: microtesla or picotesla sent as nanotesla). Unset means
+	// [15000, 80000] for DC (the geomagnetic field is about 22,000 to
+	// 67,000 nT at the surface, IGRF) and no check for AC, whose sensors
+	// may leave the static field out; [0, 0] turns the check off (sensors
+	// sending the field with a baseline taken off, gradiometers).
+	EarthField []float64         `toml:"earth_field"`
 	Sensors    []SensorConfig    `toml:"sensor"`
 	Conductors []ConductorConfig `toml:"conductor"`
 	Alarms     AlarmConfig       `toml:"alarms"`
+
+	// fieldLo, fieldHi are EarthField after validation (fieldHi 0: off).
+	fieldLo, fieldHi float64
 }
 
 // SensorConfig is one [[asset.sensor]].
@@ -411,6 +426,15 @@ func (a *AssetConfig) validate(dir string) error {
 	if a.Noise < 0 || math.IsNaN(a.Noise) {
 		return fmt.Errorf("noise %v: want a non-negative value in nT", a.Noise)
 	}
+	switch f := a.EarthField; {
+	case f == nil && a.Mode == "dc":
+		a.fieldLo, a.fieldHi = defaultEarthField[0], defaultEarthField[1]
+	case f == nil:
+	case len(f) != 2 || !(f[0] >= 0) || !(f[1] >= f[0]) || math.IsInf(f[1], 0) || f[1] == f[0] && f[0] != 0:
+		return fmt.Errorf("earth_field %v: want [low, high] in nT with 0 <= low < high, or [0, 0] for no check", f)
+	default:
+		a.fieldLo, a.fieldHi = f[0], f[1]
+	}
 	if len(a.Sensors) == 0 {
 		return fmt.Errorf("no [[asset.sensor]] tables")
 	}
@@ -484,6 +508,12 @@ func (a *AssetConfig) validate(dir string) error {
 	}
 	return nil
 }
+
+// defaultEarthField is a DC asset's earth_field when the site file gives
+// none, nT: the geomagnetic field at the Earth's surface is about 22,000
+// to 67,000 nT (IGRF, from memory), widened for local anomalies; a field
+// in microtesla or picotesla sent as nanotesla is 1000 times off.
+var defaultEarthField = [2]float64{15000, 80000}
 
 // StartKind says which kind of start point a Start is.
 type StartKind int

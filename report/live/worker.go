@@ -69,6 +69,9 @@ type assetWorker struct {
 	// overlapLogged is when each sensor's overlapping data was last
 	// logged (see noteOverlap).
 	overlapLogged map[string]time.Time
+	// implausibleLogged holds the implausible checks the last window
+	// failed (logged when they began to fail).
+	implausibleLogged map[string]bool
 }
 
 func (s *Service) newAssetWorker(a *AssetConfig) (*assetWorker, error) {
@@ -435,6 +438,30 @@ func (w *assetWorker) handle(m jetstream.Msg) error {
 	return w.closeReady(t0, 0)
 }
 
+// noteImplausible counts a window's implausible checks in
+// uc_implausible_windows_total and logs a WARN when a check starts to
+// fail, once until it passes again.
+func (w *assetWorker) noteImplausible(win *window, alarms []Alarm) {
+	failing := map[string]bool{}
+	for _, al := range alarms {
+		if al.Kind != AlarmImplausible {
+			continue
+		}
+		failing[al.Subject] = true
+		w.svc.met.implausible.WithLabelValues(w.asset.Name, al.Subject).Inc()
+		if !w.implausibleLogged[al.Subject] {
+			w.log.Warn("readings implausible: estimates are marked quality \"implausible\" while this lasts (logged once; counted in uc_implausible_windows_total)",
+				"check", al.Subject, "window", win.Index, "start", unixString(win.Start), "reason", al.Message)
+		}
+	}
+	for check := range w.implausibleLogged {
+		if !failing[check] {
+			w.log.Info("readings plausible again", "check", check, "window", win.Index)
+		}
+	}
+	w.implausibleLogged = failing
+}
+
 // overlapLogEvery is how often, at most, an overlap of one sensor's data
 // is logged (every one is counted in uc_overlap_samples_total).
 const overlapLogEvery = time.Minute
@@ -751,6 +778,7 @@ func (w *assetWorker) publishWindow(win *window, r *reduced) error {
 	if est.Quality == "failed" {
 		met.estimates.WithLabelValues(w.asset.Name, "failed").Inc()
 	}
+	w.noteImplausible(win, alarms)
 	data, err := json.Marshal(est)
 	if err != nil {
 		return fmt.Errorf("live: asset %s: encode estimate: %w", w.asset.Name, err)
