@@ -207,7 +207,10 @@
 // consumer per subject it reads: created at its first read of more than
 // one message, moved to each later read's start by a consumer reset,
 // and deleted before the query returns, also when it fails or its
-// client goes away (querycons.go).
+// client goes away (querycons.go). A step nobody answered (no responders:
+// on a cluster, a fetch can reach a node before the new consumer's
+// interest does) is tried again up to four times within about 0.4 s;
+// an API request that still fails answers 502 and is logged at WARN.
 //
 // That search needs the messages in start order, which a restart breaks:
 // re-read windows are stored again after newer ones. What holds is that
