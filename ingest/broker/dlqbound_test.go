@@ -79,19 +79,22 @@ func TestDeadLetterDefaultBoundFitsStore(t *testing.T) {
 	for _, tc := range []struct {
 		name      string
 		store     int64
+		def       int64 // StreamSettings.DeadLetterDefault
 		lo, hi    int64
 		unbounded bool
 	}{
-		{"store of 64 MiB", 64 << 20, MinDeadLetterMaxBytes, 16 << 20, false},
-		{"store of 2 GiB", 2 << 30, DefaultDeadLetterMaxBytes, DefaultDeadLetterMaxBytes, false},
-		{"store of 1 MiB", 1 << 20, 0, 0, true},
+		{"store of 64 MiB", 64 << 20, 0, MinDeadLetterMaxBytes, 16 << 20, false},
+		{"store of 2 GiB", 2 << 30, 0, DefaultDeadLetterMaxBytes, DefaultDeadLetterMaxBytes, false},
+		{"store of 2 GiB, default of 8 MiB", 2 << 30, 8 << 20, 8 << 20, 8 << 20, false},
+		{"store of 64 MiB, default of 1 GiB", 64 << 20, 1 << 30, MinDeadLetterMaxBytes, 16 << 20, false},
+		{"store of 1 MiB", 1 << 20, 0, 0, 0, true},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			s := startTestServer(t, ServerConfig{MQTTPort: -1, MaxStore: tc.store})
 			_, js := connectJS(t, s.ClientURL(), Auth{})
 			ctx, cancel := context.WithTimeout(context.Background(), 30*time.Second)
 			defer cancel()
-			stores, err := Setup(ctx, js, StreamSettings{})
+			stores, err := Setup(ctx, js, StreamSettings{DeadLetterDefault: tc.def})
 			if err != nil {
 				t.Fatal(err)
 			}

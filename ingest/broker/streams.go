@@ -1,6 +1,7 @@
 package broker
 
 import (
+	"cmp"
 	"context"
 	"errors"
 	"fmt"
@@ -29,12 +30,15 @@ type StreamSettings struct {
 	// twice) cannot fill the store that new data needs. The broker
 	// reserves the bound in its store when the stream is made, and refuses
 	// a bound it cannot reserve (Setup then fails). 0 means
-	// DefaultDeadLetterMaxBytes, or about a quarter of a store too small
-	// for four times that, at least MinDeadLetterMaxBytes, and no bound on
-	// a store that cannot reserve even that (see defaultDeadLetterBound);
-	// Stores says what was applied. Dead letters are also dropped after
+	// DeadLetterDefault, or about a quarter of a store too small for four
+	// times that, at least MinDeadLetterMaxBytes, and no bound on a store
+	// that cannot reserve even that (see defaultDeadLetterBound); Stores
+	// says what was applied. Dead letters are also dropped after
 	// DeadLetterMaxAge.
 	DeadLetterMaxBytes int64
+	// DeadLetterDefault is the bound DeadLetterMaxBytes 0 aims at; 0
+	// means DefaultDeadLetterMaxBytes.
+	DeadLetterDefault int64
 	// Duplicates is the deduplication window of estimates and alarms; 0
 	// means 1 h.
 	Duplicates time.Duration
@@ -46,9 +50,9 @@ type StreamSettings struct {
 }
 
 // DefaultDeadLetterMaxBytes is the dead-letter stream's bound when
-// StreamSettings gives none (256 MiB), MinDeadLetterMaxBytes the least it
-// is halved to on a store that cannot reserve it (4 MiB: four of the
-// largest sensor messages the pipeline takes by default);
+// StreamSettings gives none (256 MiB), MinDeadLetterMaxBytes the least a
+// default bound is cut to on a store that cannot reserve it (4 MiB: four
+// of the largest sensor messages the pipeline takes by default);
 // DeadLetterMaxAge is how long a dead letter is kept.
 const (
 	DefaultDeadLetterMaxBytes = 256 << 20
@@ -104,7 +108,7 @@ func Setup(ctx context.Context, js jetstream.JetStream, set StreamSettings) (*St
 		}
 		var err error
 		if cfg.Name == StreamDeadLetter && set.DeadLetterMaxBytes == 0 {
-			err = defaultDeadLetterBound(ctx, js, &cfg)
+			err = defaultDeadLetterBound(ctx, js, &cfg, cmp.Or(set.DeadLetterDefault, DefaultDeadLetterMaxBytes))
 		} else {
 			_, err = js.CreateOrUpdateStream(ctx, cfg)
 		}
@@ -150,14 +154,14 @@ type Stores struct {
 }
 
 // defaultDeadLetterBound creates or updates the dead-letter stream cfg
-// with the default bound: DefaultDeadLetterMaxBytes, or, on a store that
-// cannot reserve four times that, a quarter of the largest power-of-two
-// fraction of four times it that the store can reserve (found by asking
-// for it), so that the dead letters never take more than about a quarter
-// of a small store; at least MinDeadLetterMaxBytes, and no bound when the
-// store cannot reserve even that. cfg.MaxBytes is left as applied.
-func defaultDeadLetterBound(ctx context.Context, js jetstream.JetStream, cfg *jetstream.StreamConfig) error {
-	for try := int64(4 * DefaultDeadLetterMaxBytes); try >= MinDeadLetterMaxBytes; try /= 2 {
+// with a default bound: want, or, on a store that cannot reserve four
+// times that, a quarter of the largest power-of-two fraction of four
+// times it that the store can reserve (found by asking for it), so that
+// the dead letters never take more than about a quarter of the room left;
+// at least MinDeadLetterMaxBytes, and no bound when the store cannot
+// reserve even that. cfg.MaxBytes is left as applied.
+func defaultDeadLetterBound(ctx context.Context, js jetstream.JetStream, cfg *jetstream.StreamConfig, want int64) error {
+	for try := 4 * max(want, MinDeadLetterMaxBytes); try >= MinDeadLetterMaxBytes; try /= 2 {
 		cfg.MaxBytes = try
 		_, err := js.CreateOrUpdateStream(ctx, *cfg)
 		if err == nil {

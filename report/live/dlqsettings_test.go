@@ -10,20 +10,20 @@ import (
 
 // The dead letters had no byte bound and the embedded broker's store no
 // setting: [broker] dlq_max_bytes and store_max_bytes reach them, and a
-// data_max_bytes without a dlq_max_bytes bounds the dead letters to a
-// quarter of it (at least four of the largest messages taken).
+// data_max_bytes without a dlq_max_bytes aims the dead letters' bound at
+// a quarter of it (at least four of the largest messages taken).
 func TestSiteDeadLetterAndStoreBounds(t *testing.T) {
 	site := func(broker string) (*Site, error) {
 		return ParseSite("site.toml", []byte("[broker]\n"+broker+"\n"+minimalSite))
 	}
 	cases := []struct {
-		broker     string
-		dlq, store int64
+		broker                 string
+		dlq, dlqDefault, store int64
 	}{
-		{"", 0, 0}, // 0: the broker's default (see broker.StreamSettings)
-		{"data_max_bytes = 400_000_000", 100_000_000, 0},
-		{"data_max_bytes = 15_000_000", 4 << 20, 0}, // a quarter is less than 4 x 1 MiB
-		{"dlq_max_bytes = 50_000_000\nstore_max_bytes = 2_000_000_000", 50_000_000, 2_000_000_000},
+		{"", 0, 0, 0}, // 0: the broker's default (see broker.StreamSettings)
+		{"data_max_bytes = 400_000_000", 0, 100_000_000, 0},
+		{"data_max_bytes = 15_000_000", 0, 4 << 20, 0}, // a quarter is less than 4 x 1 MiB
+		{"dlq_max_bytes = 50_000_000\nstore_max_bytes = 2_000_000_000", 50_000_000, 0, 2_000_000_000},
 	}
 	for _, tc := range cases {
 		s, err := site(tc.broker)
@@ -31,8 +31,9 @@ func TestSiteDeadLetterAndStoreBounds(t *testing.T) {
 			t.Errorf("%q: %v", tc.broker, err)
 			continue
 		}
-		if s.Broker.DLQMaxBytes != tc.dlq || s.Broker.StoreMaxBytes != tc.store {
-			t.Errorf("%q: dlq_max_bytes %d, store_max_bytes %d; want %d, %d", tc.broker, s.Broker.DLQMaxBytes, s.Broker.StoreMaxBytes, tc.dlq, tc.store)
+		if s.Broker.DLQMaxBytes != tc.dlq || s.dlqDefault() != tc.dlqDefault || s.Broker.StoreMaxBytes != tc.store {
+			t.Errorf("%q: dlq_max_bytes %d (default %d), store_max_bytes %d; want %d (%d), %d",
+				tc.broker, s.Broker.DLQMaxBytes, s.dlqDefault(), s.Broker.StoreMaxBytes, tc.dlq, tc.dlqDefault, tc.store)
 		}
 	}
 	for _, bad := range []struct{ broker, want string }{

@@ -181,7 +181,7 @@ func (s *Service) Run(ctx context.Context) error {
 	sctx, cancel := context.WithTimeout(ctx, 30*time.Second)
 	s.stores, err = broker.Setup(sctx, js, broker.StreamSettings{
 		Replicas: s.site.Broker.Replicas, DataMaxAge: s.site.Broker.DataRetention.Duration, DataMaxBytes: s.site.Broker.DataMaxBytes,
-		DeadLetterMaxBytes: s.site.Broker.DLQMaxBytes, LeaseTTL: s.site.Service.LeaseTTL.Duration, Memory: s.memory})
+		DeadLetterMaxBytes: s.site.Broker.DLQMaxBytes, DeadLetterDefault: s.site.dlqDefault(), LeaseTTL: s.site.Service.LeaseTTL.Duration, Memory: s.memory})
 	cancel()
 	if err != nil {
 		return fmt.Errorf("live: %w", err)

@@ -88,11 +88,13 @@ type BrokerConfig struct {
 	DataMaxBytes int64 `toml:"data_max_bytes"`
 	// DLQMaxBytes bounds the dead letters kept (refused messages, stream
 	// UC_DLQ, seven days at most), bytes: past it the oldest give way.
-	// The broker reserves it in its store. 0 means a quarter of
-	// data_max_bytes (at least four times service.max_message_bytes, the
-	// most of a refused payload a dead letter keeps) when that is set,
-	// else 256 MiB, halved down to 4 MiB while the store cannot reserve
-	// it (a store smaller still leaves the dead letters unbounded).
+	// The broker reserves it in its store, and serve stops at start when
+	// it cannot. 0 means dlqDefault: a quarter of data_max_bytes (at least
+	// four times service.max_message_bytes, the most of a refused payload
+	// a dead letter keeps) when that is set, else 256 MiB; cut to about a
+	// quarter of the room left on a store that cannot reserve four times
+	// that, down to 4 MiB (a store smaller still leaves the dead letters
+	// unbounded).
 	DLQMaxBytes int64 `toml:"dlq_max_bytes"`
 	// StoreMaxBytes bounds the embedded broker's whole store, bytes; 0
 	// leaves the server's default, most of the disk space free when serve
@@ -347,8 +349,6 @@ func (s *Site) validate() error {
 		return fmt.Errorf("broker.dlq_max_bytes %d: want 0 (the default) or more", s.Broker.DLQMaxBytes)
 	case s.Broker.DLQMaxBytes > 0 && s.Broker.DLQMaxBytes < minDLQ:
 		return fmt.Errorf("broker.dlq_max_bytes %d: want at least %d, four times service.max_message_bytes (the most of a refused message a dead letter keeps)", s.Broker.DLQMaxBytes, minDLQ)
-	case s.Broker.DLQMaxBytes == 0 && s.Broker.DataMaxBytes > 0:
-		s.Broker.DLQMaxBytes = max(s.Broker.DataMaxBytes/4, minDLQ)
 	}
 	if s.Broker.Replicas < 1 || s.Broker.Replicas > 5 {
 		return fmt.Errorf("broker.replicas %d: want 1 to 5", s.Broker.Replicas)
@@ -507,6 +507,17 @@ func (a *AssetConfig) validate(dir string) error {
 		}
 	}
 	return nil
+}
+
+// dlqDefault is the dead-letter bound aimed at when dlq_max_bytes is 0
+// (see BrokerConfig.DLQMaxBytes): a quarter of data_max_bytes, at least
+// four times max_message_bytes, when data_max_bytes is set; else 0, the
+// broker's default.
+func (s *Site) dlqDefault() int64 {
+	if s.Broker.DataMaxBytes == 0 {
+		return 0
+	}
+	return max(s.Broker.DataMaxBytes/4, 4*int64(s.Service.MaxMessageBytes))
 }
 
 // defaultEarthField is a DC asset's earth_field when the site file gives
