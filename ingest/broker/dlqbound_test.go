@@ -105,3 +105,44 @@ func TestDeadLetterDefaultBoundFitsStore(t *testing.T) {
 		})
 	}
 }
+
+// serve processes starting together each run Setup. The default
+// dead-letter bound is found by trying bounds, so for a moment their
+// stream configurations differ, and a create racing another process's
+// create of UC_DLQ was refused ("stream name already in use": a serve
+// stopped at start in TestServeSurvivesSIGKILL). Setups run together all
+// succeed and agree on the bound.
+func TestSetupConcurrentStarts(t *testing.T) {
+	if testing.Short() {
+		t.Skip("starts brokers")
+	}
+	for round := 0; round < 12; round++ {
+		s := startTestServer(t, ServerConfig{MQTTPort: -1})
+		const n = 6
+		errs := make(chan error, n)
+		bounds := make(chan int64, n)
+		for range n {
+			go func() {
+				_, js := connectJS(t, s.ClientURL(), Auth{})
+				ctx, cancel := context.WithTimeout(context.Background(), 30*time.Second)
+				defer cancel()
+				st, err := Setup(ctx, js, StreamSettings{})
+				if err == nil {
+					bounds <- st.DeadLetterMaxBytes
+				}
+				errs <- err
+			}()
+		}
+		for range n {
+			if err := <-errs; err != nil {
+				t.Fatalf("round %d: %v", round, err)
+			}
+		}
+		first := <-bounds
+		for range n - 1 {
+			if b := <-bounds; b != first {
+				t.Errorf("round %d: bounds %d and %d", round, first, b)
+			}
+		}
+	}
+}

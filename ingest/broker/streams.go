@@ -110,7 +110,7 @@ func Setup(ctx context.Context, js jetstream.JetStream, set StreamSettings) (*St
 		if cfg.Name == StreamDeadLetter && set.DeadLetterMaxBytes == 0 {
 			err = defaultDeadLetterBound(ctx, js, &cfg, cmp.Or(set.DeadLetterDefault, DefaultDeadLetterMaxBytes))
 		} else {
-			_, err = js.CreateOrUpdateStream(ctx, cfg)
+			err = createOrUpdateStream(ctx, js, cfg)
 		}
 		if err != nil {
 			if insufficientStorage(err) && cfg.MaxBytes > 0 {
@@ -163,19 +163,37 @@ type Stores struct {
 func defaultDeadLetterBound(ctx context.Context, js jetstream.JetStream, cfg *jetstream.StreamConfig, want int64) error {
 	for try := 4 * max(want, MinDeadLetterMaxBytes); try >= MinDeadLetterMaxBytes; try /= 2 {
 		cfg.MaxBytes = try
-		_, err := js.CreateOrUpdateStream(ctx, *cfg)
+		err := createOrUpdateStream(ctx, js, *cfg)
 		if err == nil {
 			cfg.MaxBytes = max(try/4, MinDeadLetterMaxBytes)
-			_, err = js.CreateOrUpdateStream(ctx, *cfg)
-			return err
+			return createOrUpdateStream(ctx, js, *cfg)
 		}
 		if !insufficientStorage(err) {
 			return err
 		}
 	}
 	cfg.MaxBytes = -1
-	_, err := js.CreateOrUpdateStream(ctx, *cfg)
-	return err
+	return createOrUpdateStream(ctx, js, *cfg)
+}
+
+// errCodeStreamNameInUse is the JetStream API error code of a stream
+// created with a configuration other than that of a stream of the same
+// name made meanwhile.
+const errCodeStreamNameInUse = 10058
+
+// createOrUpdateStream is js.CreateOrUpdateStream, tried again when
+// another process created the stream with another configuration between
+// the client's lookup and its create (serve processes starting together:
+// the dead-letter bound is found by trying bounds, so their
+// configurations differ for a moment); the next try updates it.
+func createOrUpdateStream(ctx context.Context, js jetstream.JetStream, cfg jetstream.StreamConfig) error {
+	for attempt := 0; ; attempt++ {
+		_, err := js.CreateOrUpdateStream(ctx, cfg)
+		var je jetstream.JetStreamError
+		if err == nil || attempt == 4 || !errors.As(err, &je) || je.APIError() == nil || je.APIError().ErrorCode != errCodeStreamNameInUse {
+			return err
+		}
+	}
 }
 
 // insufficientStorage reports whether err is the broker refusing a
