@@ -423,13 +423,14 @@ func storeRefused(err error) bool {
 }
 
 // storeFullAdvice is the ERROR logged when the broker's store fills. The
-// embedded broker sizes its store once, when serve starts (from the disk
-// space free then, or broker.store_max_bytes), and the stream bounds are
-// set at start too: freeing disk space or changing those settings takes
-// effect only after a restart.
+// embedded broker without broker.store_max_bytes raises its store bound
+// when disk space is freed (serve looks every 15 s); a store_max_bytes and
+// the stream bounds are read at start, so changing them takes effect only
+// after a restart.
 const storeFullAdvice = "the broker's store is full: no lease, estimate or sensor batch can be stored until space is freed. " +
-	"The embedded broker sizes its store when serve starts: free disk space or raise broker.store_max_bytes, or lower broker.data_retention, " +
-	"broker.data_max_bytes or broker.dlq_max_bytes, then restart serve (a cluster's own limits are the nats-server configuration's)"
+	"Free disk space (the embedded broker without broker.store_max_bytes takes it up within 15 s), " +
+	"or raise broker.store_max_bytes, or lower broker.data_retention, broker.data_max_bytes or broker.dlq_max_bytes, and restart serve " +
+	"(a cluster's own limits are in the nats-server configuration)"
 
 // noteStore follows the outcome of a write to the broker: a write refused
 // for want of storage marks the store full (logged at ERROR, /readyz

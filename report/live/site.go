@@ -97,9 +97,10 @@ type BrokerConfig struct {
 	// unbounded).
 	DLQMaxBytes int64 `toml:"dlq_max_bytes"`
 	// StoreMaxBytes bounds the embedded broker's whole store, bytes; 0
-	// leaves the server's default, most of the disk space free when serve
-	// starts. Either way the bound is fixed at start: after freeing disk
-	// space or changing it, restart serve. Not used with --broker.
+	// means nats-server's default, three quarters of the disk space free
+	// (plus of what the store holds), which serve raises when space is
+	// freed. A value given is read at start: after changing it, restart
+	// serve. Not used with --broker.
 	StoreMaxBytes int64 `toml:"store_max_bytes"`
 	// User and Password (or Token) are the credentials the service itself
 	// uses. Users lists the accounts of the embedded server; when it is
