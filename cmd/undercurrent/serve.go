@@ -8,6 +8,7 @@ import (
 	"net"
 	"os"
 	"strconv"
+	"time"
 
 	"github.com/spf13/pflag"
 
@@ -126,6 +127,9 @@ func runServe(ctx context.Context, o *serveOptions, args []string, stderr io.Wri
 		defer srv.Shutdown()
 		url = srv.ClientURL()
 		log.Info("embedded broker started", "nats", url, "mqtt", srv.MQTTAddr(), "store", o.data)
+		gctx, gcancel := context.WithCancel(ctx)
+		defer gcancel()
+		go growStore(gctx, srv, log)
 	}
 	nc, err := broker.Connect(url, "undercurrent serve", auth)
 	if err != nil {
@@ -140,9 +144,38 @@ func runServe(ctx context.Context, o *serveOptions, args []string, stderr io.Wri
 	return svc.Run(ctx)
 }
 
+// growStoreEvery is how often serve looks for freed disk space to raise
+// the embedded broker's store bound with.
+const growStoreEvery = 15 * time.Second
+
+// growStore raises the embedded broker's store bound when disk space has
+// been freed (broker.Server.GrowStore; not with [broker] store_max_bytes),
+// so that a store that filled the disk takes writes again without a
+// restart. A failure is logged once.
+func growStore(ctx context.Context, srv *broker.Server, log *slog.Logger) {
+	t := time.NewTicker(growStoreEvery)
+	defer t.Stop()
+	warned := false
+	for {
+		select {
+		case <-ctx.Done():
+			return
+		case <-t.C:
+		}
+		from, to, err := srv.GrowStore()
+		switch {
+		case err != nil && !warned:
+			warned = true
+			log.Warn("the embedded broker's store bound cannot follow the free disk space; after freeing space, restart serve", "err", err)
+		case err == nil && to > from:
+			log.Info("disk space freed: the embedded broker's store bound raised", "from_bytes", from, "to_bytes", to)
+		}
+	}
+}
+
 // embeddedConfig turns the site's [broker] table into the embedded server's settings.
 func embeddedConfig(site *live.Site, dir string) (broker.ServerConfig, error) {
-	cfg := broker.ServerConfig{StoreDir: dir, Name: "undercurrent", Token: site.Broker.Token}
+	cfg := broker.ServerConfig{StoreDir: dir, Name: "undercurrent", Token: site.Broker.Token, MaxStore: site.Broker.StoreMaxBytes}
 	host, port, err := splitAddr(site.Broker.Listen, "broker.listen")
 	if err != nil {
 		return cfg, err

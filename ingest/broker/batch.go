@@ -39,7 +39,7 @@ type jsonBatch struct {
 	Sensor string    `json:"sensor,omitempty"`
 	Time   []float64 `json:"time,omitempty"`
 	T0     *float64  `json:"t0,omitempty"`
-	Rate   float64   `json:"rate,omitempty"`
+	Rate   *float64  `json:"rate,omitempty"`
 	Bx     []float64 `json:"bx"`
 	By     []float64 `json:"by"`
 	Bz     []float64 `json:"bz"`
@@ -132,13 +132,17 @@ func decodeJSON(subject string, data []byte) (*Batch, error) {
 		return nil, fmt.Errorf("broker: %s: give either \"time\" or \"t0\" with \"rate\", not both", subject)
 	case jb.Time != nil:
 		b.Time = jb.Time
+	case jb.T0 != nil && jb.Rate == nil:
+		// Not "rate 0": the gateway sent no rate at all.
+		return nil, fmt.Errorf("broker: %s: \"t0\" needs \"rate\" (samples per second): give both, or \"time\" instead", subject)
 	case jb.T0 != nil:
-		if !(jb.Rate > 0) || math.IsInf(jb.Rate, 0) {
-			return nil, fmt.Errorf("broker: %s: column rate: %v is not a positive sample rate", subject, jb.Rate)
+		rate := *jb.Rate
+		if !(rate > 0) || math.IsInf(rate, 0) {
+			return nil, fmt.Errorf("broker: %s: column rate: %v is not a positive sample rate", subject, rate)
 		}
 		b.Time = make([]float64, len(jb.Bx))
 		for i := range b.Time {
-			b.Time[i] = *jb.T0 + float64(i)/jb.Rate
+			b.Time[i] = *jb.T0 + float64(i)/rate
 		}
 	default:
 		return nil, fmt.Errorf("broker: %s: missing \"time\" (or \"t0\" and \"rate\")", subject)

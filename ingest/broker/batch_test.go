@@ -31,6 +31,9 @@ func TestDecode(t *testing.T) {
 		{"empty", "", `{"time":[],"bx":[],"by":[],"bz":[]}`, "no samples", 0},
 		{"no times", "", `{"bx":[1],"by":[0],"bz":[5]}`, `missing "time"`, 0},
 		{"bad rate", "", `{"t0":0,"rate":0,"bx":[1],"by":[0],"bz":[5]}`, "not a positive sample rate", 0},
+		// A batch with t0 and no rate was refused as "rate: 0 is not a
+		// positive sample rate", pointing at a value nobody sent.
+		{"t0 without rate", "", `{"t0":1796290000,"bx":[1,2],"by":[0,0],"bz":[5,5]}`, `"t0" needs "rate"`, 0},
 		{"unknown encoding", "", "\x00\x01garbage", "unknown payload encoding", 0},
 		{"corrupt arrow", "", "\xff\xff\xff\xff\x10\x00\x00\x00garbagegarbage", "arrow", 0},
 	}

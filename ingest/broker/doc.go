@@ -8,7 +8,7 @@
 //	uc.data.<asset>.<sensor>   sensor batches in (stream UC_DATA)
 //	uc.est.<asset>             one estimate per asset and window (stream UC_EST)
 //	uc.alarm.<asset>.<kind>    alarms (stream UC_ALARM)
-//	uc.dlq.<reason>            refused messages, payload unchanged (stream UC_DLQ)
+//	uc.dlq.<reason>            refused messages with their payload (stream UC_DLQ)
 //
 // Asset and sensor names are single tokens of letters, digits, '-' and
 // '_' (ValidToken). MQTT gateways publish to the topic uc/data/<asset>/<sensor>;
@@ -23,7 +23,15 @@
 // messages above its maximum payload (8 MiB for the embedded server) at
 // publication. Each dead letter carries the headers
 // Uc-Reason, Uc-Error (the full message, naming row and column), Uc-Subject
-// and Uc-Seq (the sequence in UC_DATA).
+// and Uc-Seq (the sequence in UC_DATA); a payload longer than the
+// pipeline's largest message is cut to that length, its full size in
+// Uc-Truncated. UC_DLQ keeps dead letters seven days and up to a byte
+// bound, the oldest discarded (StreamSettings.DeadLetterMaxBytes), so
+// refused data cannot fill the store.
+//
+// Message ids: PublishBatch gives a batch the id
+// asset/sensor/first/last/count/hash (BatchID), so the broker drops, for
+// two minutes, only a batch identical to one it holds.
 //
 // Key-value buckets: uc_latest (latest estimate per asset, key = asset),
 // uc_state (per-asset checkpoint and commissioned geometry), uc_lease (which

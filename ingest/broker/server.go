@@ -5,6 +5,7 @@ import (
 	"net"
 	"os"
 	"strconv"
+	"sync"
 	"time"
 
 	"github.com/nats-io/nats-server/v2/server"
@@ -40,8 +41,10 @@ type ServerConfig struct {
 	Token string
 	// MaxPayload is the largest message the broker accepts, bytes; 0 means 8 MiB.
 	MaxPayload int32
-	// MaxStore bounds the JetStream file store, bytes; 0 leaves the
-	// server's default (most of the free disk space).
+	// MaxStore bounds the JetStream file store, bytes; 0 means what
+	// nats-server gives a store without a bound (three quarters of the disk
+	// space free at start plus of what the store holds), set explicitly so
+	// that GrowStore can raise it once space is freed.
 	MaxStore int64
 	// Logf, when non-nil, receives the server's notices and warnings, and
 	// its errors unless Errorf is set.
@@ -56,6 +59,10 @@ type Server struct {
 	ns   *server.Server
 	cfg  ServerConfig
 	lock *os.File // the store's lock file (see lockStore)
+
+	mu        sync.Mutex
+	opts      *server.Options // as the server runs them (see setMaxStore)
+	autoStore bool            // MaxStore was derived from the disk (GrowStore)
 }
 
 // StartServer starts an embedded NATS server with JetStream on a file store
@@ -77,6 +84,14 @@ func StartServer(cfg ServerConfig) (*Server, error) {
 	if cfg.MaxPayload == 0 {
 		cfg.MaxPayload = 8 << 20
 	}
+	maxStore, autoStore := cfg.MaxStore, cfg.MaxStore == 0
+	if autoStore {
+		if n, err := autoStoreLimit(cfg.StoreDir, dirBytes(cfg.StoreDir)); err == nil && n > 0 {
+			maxStore = n
+		} else {
+			autoStore = false // nats-server takes its own guess
+		}
+	}
 	opts := &server.Options{
 		ServerName:         cfg.Name,
 		Host:               cfg.Host,
@@ -87,7 +102,7 @@ func StartServer(cfg ServerConfig) (*Server, error) {
 		NoSigs:             true,
 		Authorization:      cfg.Token,
 		JetStreamMaxMemory: 256 << 20,
-		JetStreamMaxStore:  cfg.MaxStore,
+		JetStreamMaxStore:  maxStore,
 	}
 	if opts.Port == 0 {
 		opts.Port = server.RANDOM_PORT
@@ -150,7 +165,7 @@ func StartServer(cfg ServerConfig) (*Server, error) {
 			return fail("not ready after 10 s (" + ports + ")")
 		}
 	}
-	return &Server{ns: ns, cfg: cfg, lock: lock}, nil
+	return &Server{ns: ns, cfg: cfg, lock: lock, opts: opts, autoStore: autoStore}, nil
 }
 
 // unlock releases a store lock taken by lockStore.

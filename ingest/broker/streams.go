@@ -1,7 +1,9 @@
 package broker
 
 import (
+	"cmp"
 	"context"
+	"errors"
 	"fmt"
 	"time"
 
@@ -22,6 +24,21 @@ type StreamSettings struct {
 	// DataMaxAge of data shortens the raw history instead of refusing new
 	// data. 0 means no bound but the age.
 	DataMaxBytes int64
+	// DeadLetterMaxBytes bounds the dead letters kept (stream UC_DLQ),
+	// bytes: past it the oldest are discarded for new ones, so that refused
+	// data (a gateway sending late or malformed batches, a log replayed
+	// twice) cannot fill the store that new data needs. The broker
+	// reserves the bound in its store when the stream is made, and refuses
+	// a bound it cannot reserve (Setup then fails). 0 means
+	// DeadLetterDefault, or about a quarter of a store too small for four
+	// times that, at least MinDeadLetterMaxBytes, and no bound on a store
+	// that cannot reserve even that (see defaultDeadLetterBound); Stores
+	// says what was applied. Dead letters are also dropped after
+	// DeadLetterMaxAge.
+	DeadLetterMaxBytes int64
+	// DeadLetterDefault is the bound DeadLetterMaxBytes 0 aims at; 0
+	// means DefaultDeadLetterMaxBytes.
+	DeadLetterDefault int64
 	// Duplicates is the deduplication window of estimates and alarms; 0
 	// means 1 h.
 	Duplicates time.Duration
@@ -31,6 +48,25 @@ type StreamSettings struct {
 	// Memory stores everything in memory instead of files (tests only).
 	Memory bool
 }
+
+// DefaultDeadLetterMaxBytes is the dead-letter stream's bound when
+// StreamSettings gives none (256 MiB), MinDeadLetterMaxBytes the least a
+// default bound is cut to on a store that cannot reserve it (4 MiB: four
+// of the largest sensor messages the pipeline takes by default);
+// DeadLetterMaxAge is how long a dead letter is kept.
+const (
+	DefaultDeadLetterMaxBytes = 256 << 20
+	MinDeadLetterMaxBytes     = 4 << 20
+	DeadLetterMaxAge          = 7 * 24 * time.Hour
+)
+
+// errCodeInsufficientStorage and errCodeInsufficientMemory are the
+// JetStream API error codes of a stream whose byte bound the server cannot
+// reserve, in a file and a memory store.
+const (
+	errCodeInsufficientStorage = 10047
+	errCodeInsufficientMemory  = 10028
+)
 
 // Setup creates or updates the streams and key-value buckets the pipeline
 // uses (see the package documentation) and returns their handles.
@@ -55,7 +91,7 @@ func Setup(ctx context.Context, js jetstream.JetStream, set StreamSettings) (*St
 		{Name: StreamData, Subjects: []string{DataPrefix + ".>"}, MaxAge: set.DataMaxAge, MaxBytes: set.DataMaxBytes, Discard: jetstream.DiscardOld, Duplicates: 2 * time.Minute},
 		{Name: StreamEstimates, Subjects: []string{EstimatePrefix + ".>"}, Duplicates: set.Duplicates},
 		{Name: StreamAlarms, Subjects: []string{AlarmPrefix + ".>"}, Duplicates: set.Duplicates},
-		{Name: StreamDeadLetter, Subjects: []string{DeadLetterPrefix + ".>"}, Duplicates: set.Duplicates, MaxAge: 7 * 24 * time.Hour},
+		{Name: StreamDeadLetter, Subjects: []string{DeadLetterPrefix + ".>"}, Duplicates: set.Duplicates, MaxAge: DeadLetterMaxAge, MaxBytes: set.DeadLetterMaxBytes, Discard: jetstream.DiscardOld},
 	}
 	st := &Stores{JS: js, LeaseTTL: set.LeaseTTL}
 	for _, cfg := range streams {
@@ -70,8 +106,20 @@ func Setup(ctx context.Context, js jetstream.JetStream, set StreamSettings) (*St
 		if set.Replicas == 1 && (cfg.Name == StreamEstimates || cfg.Name == StreamAlarms) {
 			cfg.AllowDirect = true
 		}
-		if _, err := js.CreateOrUpdateStream(ctx, cfg); err != nil {
+		var err error
+		if cfg.Name == StreamDeadLetter && set.DeadLetterMaxBytes == 0 {
+			err = defaultDeadLetterBound(ctx, js, &cfg, cmp.Or(set.DeadLetterDefault, DefaultDeadLetterMaxBytes))
+		} else {
+			err = createOrUpdateStream(ctx, js, cfg)
+		}
+		if err != nil {
+			if insufficientStorage(err) && cfg.MaxBytes > 0 {
+				return nil, fmt.Errorf("broker: stream %s: %w (its byte bound, %d, is more than the store can reserve)", cfg.Name, err, cfg.MaxBytes)
+			}
 			return nil, fmt.Errorf("broker: stream %s: %w", cfg.Name, err)
+		}
+		if cfg.Name == StreamDeadLetter {
+			st.DeadLetterMaxBytes = max(cfg.MaxBytes, 0)
 		}
 	}
 	kvs := []struct {
@@ -100,6 +148,63 @@ type Stores struct {
 	JS                            jetstream.JetStream
 	Latest, State, Lease, Workers jetstream.KeyValue
 	LeaseTTL                      time.Duration
+	// DeadLetterMaxBytes is the dead-letter stream's bound as applied
+	// (0: none; see StreamSettings.DeadLetterMaxBytes).
+	DeadLetterMaxBytes int64
+}
+
+// defaultDeadLetterBound creates or updates the dead-letter stream cfg
+// with a default bound: want, or, on a store that cannot reserve four
+// times that, a quarter of the largest power-of-two fraction of four
+// times it that the store can reserve (found by asking for it), so that
+// the dead letters never take more than about a quarter of the room left;
+// at least MinDeadLetterMaxBytes, and no bound when the store cannot
+// reserve even that. cfg.MaxBytes is left as applied.
+func defaultDeadLetterBound(ctx context.Context, js jetstream.JetStream, cfg *jetstream.StreamConfig, want int64) error {
+	for try := 4 * max(want, MinDeadLetterMaxBytes); try >= MinDeadLetterMaxBytes; try /= 2 {
+		cfg.MaxBytes = try
+		err := createOrUpdateStream(ctx, js, *cfg)
+		if err == nil {
+			cfg.MaxBytes = max(try/4, MinDeadLetterMaxBytes)
+			return createOrUpdateStream(ctx, js, *cfg)
+		}
+		if !insufficientStorage(err) {
+			return err
+		}
+	}
+	cfg.MaxBytes = -1
+	return createOrUpdateStream(ctx, js, *cfg)
+}
+
+// errCodeStreamNameInUse is the JetStream API error code of a stream
+// created with a configuration other than that of a stream of the same
+// name made meanwhile.
+const errCodeStreamNameInUse = 10058
+
+// createOrUpdateStream is js.CreateOrUpdateStream, tried again when
+// another process created the stream with another configuration between
+// the client's lookup and its create (serve processes starting together:
+// the dead-letter bound is found by trying bounds, so their
+// configurations differ for a moment); the next try updates it.
+func createOrUpdateStream(ctx context.Context, js jetstream.JetStream, cfg jetstream.StreamConfig) error {
+	for attempt := 0; ; attempt++ {
+		_, err := js.CreateOrUpdateStream(ctx, cfg)
+		var je jetstream.JetStreamError
+		if err == nil || attempt == 4 || !errors.As(err, &je) || je.APIError() == nil || je.APIError().ErrorCode != errCodeStreamNameInUse {
+			return err
+		}
+	}
+}
+
+// insufficientStorage reports whether err is the broker refusing a
+// stream's byte bound that it cannot reserve.
+func insufficientStorage(err error) bool {
+	var je jetstream.JetStreamError
+	if !errors.As(err, &je) || je.APIError() == nil {
+		return false
+	}
+	c := je.APIError().ErrorCode
+	return c == errCodeInsufficientStorage || c == errCodeInsufficientMemory
 }
 
 // Auth holds client credentials; the zero value connects without any.

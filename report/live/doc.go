@@ -31,9 +31,12 @@
 // Sample times are Unix seconds. A batch with a time before 2000-01-01,
 // or more than MaxAhead (1 h by default) ahead of the broker's clock when
 // it was stored (a gateway sending milliseconds), is dead-lettered as
-// malformed before it can touch the sensor's state. Batches that start at
-// or before a sensor's last sample are dead-lettered as out-of-order;
-// batches entirely inside published windows as late. A message is
+// malformed before it can touch the sensor's state. A batch that
+// straddles a sensor's last sample (data sent again with other batch
+// edges) loses the samples at or before it, counted in
+// uc_overlap_samples_total, and the rest are filed; a batch with no sample
+// after it is dead-lettered as out-of-order, and one entirely inside
+// published windows as late. A message is
 // dead-lettered once: the checkpoint counts it as examined as soon as its
 // dead letter is stored (and is written then if no window is open), and
 // a later holder that reads it again to rebuild an open window counts it
@@ -185,7 +188,11 @@
 // wall time, once per silence: dated from the broker's time of the last
 // stored batch, and kept in the checkpoint for a successor), stuck (one value
 // repeated on an axis for a whole window), degraded (reduced chi-square
-// above max_chi2, or the solve failed). Each is published on
+// above max_chi2, or the solve failed), implausible (readings that do not
+// look like nanotesla: the Earth's field outside earth_field, subject
+// "earth-field", or with noise given a chi-square far below its degrees
+// of freedom, subject "chi2"; the estimate's quality is then
+// "implausible"). Each is published on
 // uc.alarm.<asset>.<kind> with message id "<asset>/<window>/<kind>/<subject>".
 //
 // # Queries
@@ -200,7 +207,10 @@
 // consumer per subject it reads: created at its first read of more than
 // one message, moved to each later read's start by a consumer reset,
 // and deleted before the query returns, also when it fails or its
-// client goes away (querycons.go).
+// client goes away (querycons.go). A step nobody answered (no responders:
+// on a cluster, a fetch can reach a node before the new consumer's
+// interest does) is tried again up to four times within about 0.4 s;
+// an API request that still fails answers 502 and is logged at WARN.
 //
 // That search needs the messages in start order, which a restart breaks:
 // re-read windows are stored again after newer ones. What holds is that

@@ -23,11 +23,17 @@ type Estimate struct {
 	// fit. Quality is "good"; "partial" when the fit is good but a
 	// sensor's samples were missing from the window or left out (Missing
 	// says which and why); "degraded" when the reduced chi-square is above
-	// alarms.max_chi2; "failed" when the solve failed.
+	// alarms.max_chi2; "implausible" when the readings do not look like
+	// magnetometer readings in nanotesla (Implausible says why: the Earth's
+	// field outside earth_field, or a chi-square far below its degrees of
+	// freedom with noise given); "failed" when the solve failed.
 	RMS     float64 `json:"rms_nt"`
 	Chi2    float64 `json:"chi2"`
 	DOF     int     `json:"dof"`
 	Quality string  `json:"quality"`
+	// Implausible lists why the window's readings look implausible (the
+	// messages of its implausible alarms); absent when they do not.
+	Implausible []string `json:"implausible,omitempty"`
 	// Sensors used, samples used, and the sensors left out or short of
 	// samples with why: "silent", "stuck", "131 of 500 samples" (used, but
 	// more than one sample short of what its rate puts in a window), "2 of
@@ -95,8 +101,11 @@ const (
 	AlarmSilent      = "silent"       // sensor sent nothing in the window
 	AlarmStuck       = "stuck"        // sensor repeated one value on an axis
 	AlarmDegraded    = "degraded"     // reduced chi-square above alarms.max_chi2, or the solve failed
+	// AlarmImplausible: the readings do not look like nanotesla (subject
+	// "earth-field" or "chi2", see Estimate.Implausible).
+	AlarmImplausible = "implausible"
 )
 
 // AlarmKinds lists every alarm kind the service raises; the alarms API
 // refuses any other kind.
-var AlarmKinds = []string{AlarmOverCurrent, AlarmImbalance, AlarmStep, AlarmSilent, AlarmStuck, AlarmDegraded}
+var AlarmKinds = []string{AlarmOverCurrent, AlarmImbalance, AlarmStep, AlarmSilent, AlarmStuck, AlarmDegraded, AlarmImplausible}

@@ -304,11 +304,14 @@ func (q *rangeQuery) fail(err error) error {
 // empty.
 func (s *Service) openQuery(ctx context.Context, query, stream, subject string) (*rangeQuery, error) {
 	q := &rangeQuery{s: s, stream: stream, subject: subject, query: query, reads: s.met.queryReads.WithLabelValues(query)}
-	st, err := s.stores.JS.Stream(ctx, stream)
-	if err != nil {
-		return nil, q.fail(err)
-	}
-	info, err := st.Info(ctx)
+	var st jetstream.Stream
+	var info *jetstream.StreamInfo
+	err := q.retry(ctx, "stream info", func() (err error) {
+		if st, err = s.stores.JS.Stream(ctx, stream); err == nil {
+			info, err = st.Info(ctx)
+		}
+		return err
+	})
 	if err != nil {
 		return nil, q.fail(err)
 	}
@@ -339,13 +342,16 @@ func msgRevision(m *jetstream.RawStreamMsg) int {
 // stored so far carries. It is one message read.
 func (q *rangeQuery) topRevision(ctx context.Context, asset string) (int, error) {
 	st := q.st
-	if q.stream != broker.StreamEstimates {
-		var err error
-		if st, err = q.s.stores.JS.Stream(ctx, broker.StreamEstimates); err != nil {
-			return 0, q.fail(err)
+	var m *jetstream.RawStreamMsg
+	err := q.retry(ctx, "newest estimate", func() (err error) {
+		if q.stream != broker.StreamEstimates {
+			if st, err = q.s.stores.JS.Stream(ctx, broker.StreamEstimates); err != nil {
+				return err
+			}
 		}
-	}
-	m, err := st.GetLastMsgForSubject(ctx, broker.EstimateSubject(asset))
+		m, err = st.GetLastMsgForSubject(ctx, broker.EstimateSubject(asset))
+		return err
+	})
 	if errors.Is(err, jetstream.ErrMsgNotFound) {
 		return 0, nil
 	}
@@ -362,7 +368,11 @@ func (q *rangeQuery) next(ctx context.Context, seq, end uint64) (*jetstream.RawS
 	if seq >= end {
 		return nil, nil
 	}
-	m, err := q.st.GetMsg(ctx, seq, jetstream.WithGetMsgSubject(q.subject))
+	var m *jetstream.RawStreamMsg
+	err := q.retry(ctx, "lookup", func() (err error) {
+		m, err = q.st.GetMsg(ctx, seq, jetstream.WithGetMsgSubject(q.subject))
+		return err
+	})
 	if errors.Is(err, jetstream.ErrMsgNotFound) {
 		return nil, nil
 	}
@@ -472,14 +482,19 @@ func (q *rangeQuery) readFrom(ctx context.Context, first *jetstream.RawStreamMsg
 	if err != nil {
 		return err
 	}
-	for batch := 2; pending > 0; batch = min(2*batch, 256) {
+	for batch, attempt := 2, 0; pending > 0; batch = min(2*batch, 256) {
 		// No more than are pending, nor than the sequences left before end.
 		if err := q.fetch(ctx, int(min(uint64(batch), pending, end-q.c.next))); err != nil {
 			return err
 		}
-		got := 0
+		got, retry := 0, false
 		for {
 			m, seq, ok, err := q.recv(ctx)
+			if err != nil && got == 0 && q.again(ctx, attempt, "fetch", err) {
+				// Nothing delivered: the consumer is where it was.
+				attempt, retry = attempt+1, true
+				break
+			}
 			if err != nil {
 				return err
 			}
@@ -497,9 +512,13 @@ func (q *rangeQuery) readFrom(ctx context.Context, first *jetstream.RawStreamMsg
 				return nil
 			}
 		}
+		if retry {
+			continue
+		}
 		if got == 0 {
 			return q.fail(fmt.Errorf("no message delivered although %d are pending", pending))
 		}
+		attempt = 0
 		pending = q.c.pending
 	}
 	return nil

@@ -183,6 +183,14 @@ func (s *Service) write(h http.Handler) http.Handler {
 	})
 }
 
+// brokerError answers 502 for a request the broker failed, and logs it
+// at WARN with the request, so that an operator can see why a dashboard
+// or an alarm poller got a 502.
+func (s *Service) brokerError(w http.ResponseWriter, r *http.Request, err error) {
+	s.log.Warn("API request failed in the broker", "method", r.Method, "path", r.URL.Path, "query", r.URL.RawQuery, "status", http.StatusBadGateway, "err", err)
+	httpError(w, http.StatusBadGateway, err.Error())
+}
+
 func httpError(w http.ResponseWriter, code int, msg string) {
 	w.Header().Set("Content-Type", "application/json")
 	w.WriteHeader(code)
@@ -244,7 +252,7 @@ func (s *Service) assets(w http.ResponseWriter, r *http.Request) {
 	for i := range s.site.Assets {
 		ai, err := s.assetInfo(r.Context(), &s.site.Assets[i])
 		if err != nil {
-			httpError(w, http.StatusBadGateway, err.Error())
+			s.brokerError(w, r, err)
 			return
 		}
 		out = append(out, ai)
@@ -271,7 +279,7 @@ func (s *Service) latest(w http.ResponseWriter, r *http.Request) {
 		return
 	}
 	if err != nil {
-		httpError(w, http.StatusBadGateway, err.Error())
+		s.brokerError(w, r, err)
 		return
 	}
 	w.Header().Set("Content-Type", "application/json")
@@ -382,7 +390,7 @@ func (s *Service) history(w http.ResponseWriter, r *http.Request) {
 	}
 	ests, err := s.History(r.Context(), a.Name, q.from, q.to, q.limit, q.opts...)
 	if err != nil {
-		httpError(w, http.StatusBadGateway, err.Error())
+		s.brokerError(w, r, err)
 		return
 	}
 	if format == "csv" {
@@ -447,7 +455,7 @@ func (s *Service) alarmList(w http.ResponseWriter, r *http.Request) {
 	}
 	list, err := s.Alarms(r.Context(), asset, kind, q.from, q.to, q.since, q.limit, q.opts...)
 	if err != nil {
-		httpError(w, http.StatusBadGateway, err.Error())
+		s.brokerError(w, r, err)
 		return
 	}
 	writeJSON(w, list)
@@ -465,7 +473,7 @@ func (s *Service) recommission(w http.ResponseWriter, r *http.Request) {
 	ctx, cancel := context.WithTimeout(r.Context(), 10*time.Second)
 	defer cancel()
 	if err := s.stores.State.Delete(ctx, geometryKey(a.Name)); err != nil {
-		httpError(w, http.StatusBadGateway, err.Error())
+		s.brokerError(w, r, err)
 		return
 	}
 	s.log.Info("geometry forgotten; the asset is commissioned again from new data", "asset", a.Name)

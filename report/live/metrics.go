@@ -14,6 +14,8 @@ type metrics struct {
 	messages    *prometheus.CounterVec   // asset, outcome
 	deadLetters *prometheus.CounterVec   // reason
 	samples     *prometheus.CounterVec   // asset
+	overlap     *prometheus.CounterVec   // asset
+	implausible *prometheus.CounterVec   // asset, check
 	windows     *prometheus.CounterVec   // asset, closed
 	estimates   *prometheus.CounterVec   // asset, result
 	alarms      *prometheus.CounterVec   // asset, kind
@@ -36,6 +38,10 @@ func newMetrics() *metrics {
 		Help: "Messages sent to uc.dlq.<reason>, by reason."}, []string{"reason"})
 	m.samples = prometheus.NewCounterVec(prometheus.CounterOpts{Name: "uc_samples_total",
 		Help: "Three-axis samples accepted, by asset."}, []string{"asset"})
+	m.overlap = prometheus.NewCounterVec(prometheus.CounterOpts{Name: "uc_overlap_samples_total",
+		Help: "Samples dropped because they repeated what their sensor had already sent (a batch overlapping the sensor's last sample; its later samples are kept), by asset."}, []string{"asset"})
+	m.implausible = prometheus.NewCounterVec(prometheus.CounterOpts{Name: "uc_implausible_windows_total",
+		Help: "Windows whose readings look implausible, by asset and check (earth-field: the Earth's field outside earth_field; chi2: chi-square far below its degrees of freedom)."}, []string{"asset", "check"})
 	m.windows = prometheus.NewCounterVec(prometheus.CounterOpts{Name: "uc_windows_total",
 		Help: "Windows closed, by asset and why (complete, grace, idle)."}, []string{"asset", "closed"})
 	m.estimates = prometheus.NewCounterVec(prometheus.CounterOpts{Name: "uc_estimates_total",
@@ -61,7 +67,7 @@ func newMetrics() *metrics {
 		Help: "1 while the broker refuses this worker's writes (heartbeat, leases, estimates) for want of storage, else 0."})
 	m.takeovers = prometheus.NewCounter(prometheus.CounterOpts{Name: "uc_asset_acquisitions_total",
 		Help: "Times this worker acquired an asset's lease."})
-	m.reg.MustRegister(m.messages, m.deadLetters, m.samples, m.windows, m.estimates, m.alarms,
+	m.reg.MustRegister(m.messages, m.deadLetters, m.samples, m.overlap, m.implausible, m.windows, m.estimates, m.alarms,
 		m.stage, m.latency, m.pending, m.stalls, m.dataLag, m.queryReads, m.leases, m.storeFull, m.takeovers,
 		collectors.NewGoCollector(), collectors.NewProcessCollector(collectors.ProcessCollectorOpts{}))
 	return m

@@ -5,6 +5,8 @@ import (
 	"math"
 	"sort"
 
+	"gonum.org/v1/gonum/stat/distuv"
+
 	"undercurrent/calibrate"
 )
 
@@ -73,6 +75,10 @@ type reduced struct {
 	// freq is the AC frequency the window was demodulated at, Hz, and
 	// freqSigma its uncertainty (0 when it is the site's frequency).
 	freq, freqSigma float64
+	// totals are the used sensors' mean total fields, |window mean of the
+	// calibrated field|, nT (the static field: a sine over whole cycles
+	// averages out).
+	totals []float64
 }
 
 // minSamples is the fewest samples a sensor needs in a window to be used:
@@ -182,6 +188,7 @@ func (p *processor) reduce(w *window) *reduced {
 			}
 			r.in.Fields = append(r.in.Fields, e)
 		}
+		r.totals = append(r.totals, math.Sqrt(mean(d.bx)*mean(d.bx)+mean(d.by)*mean(d.by)+mean(d.bz)*mean(d.bz)))
 		n := len(d.t)
 		r.in.Points = append(r.in.Points, s.Position)
 		r.used = append(r.used, d.i)
@@ -353,6 +360,13 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 	if e.Quality == "good" && len(r.missing) > 0 {
 		e.Quality = "partial" // a sensor short of samples or left out: see Missing
 	}
+	if imp := p.implausible(w, r, out); len(imp) > 0 {
+		e.Quality = "implausible"
+		for _, al := range imp {
+			e.Implausible = append(e.Implausible, al.Message)
+		}
+		alarms = append(alarms, imp...)
+	}
 	// The held geometry's error, in quadrature with the window's noise.
 	gCur, gPhase := p.geometrySigmas(&r.in, len(p.names))
 	byName := map[string]complex128{}
@@ -411,6 +425,79 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 		}
 	}
 	return e, alarms
+}
+
+// Checks of an implausible window, the subjects of its implausible alarms.
+const (
+	checkEarthField = "earth-field"
+	checkChi2       = "chi2"
+)
+
+// implausible returns an implausible alarm for each check of the window's
+// readings that fails, none when they look like magnetometer readings in
+// nanotesla:
+//
+//   - earth-field: the Earth's field seen by the sensors (for DC the
+//     uniform background fitted with the currents, which the conductors'
+//     own fields do not enter; for AC, when earth_field is given, the
+//     median of the sensors' mean total fields) outside the asset's
+//     earth_field range. Readings in microtesla sent as nanotesla put the
+//     geomagnetic field near 50 instead of 50,000. A DC estimator that
+//     fits no background is not checked.
+//   - chi2: with the asset's noise given, a chi-square far below its
+//     degrees of freedom (chi2Implausible): the residuals are far smaller
+//     than the noise says, which is what readings scaled down by a wrong
+//     unit give (the noise stated in nT, the readings 1000 times too small).
+func (p *processor) implausible(w *window, r *reduced, out *SolveOutput) []Alarm {
+	a := p.asset
+	var alarms []Alarm
+	if a.fieldHi > 0 {
+		level, what := math.NaN(), ""
+		if out.Background != nil {
+			b := out.Background
+			level, what = math.Sqrt(b[0]*b[0]+b[1]*b[1]+b[2]*b[2]), "the fitted uniform background"
+		} else if a.Mode == "ac" && len(r.totals) > 0 {
+			v := append([]float64(nil), r.totals...)
+			sort.Float64s(v)
+			level, what = v[len(v)/2], "the sensors' median mean total field"
+		}
+		if !math.IsNaN(level) && (level < a.fieldLo || level > a.fieldHi) {
+			th := a.fieldLo
+			if level > a.fieldHi {
+				th = a.fieldHi
+			}
+			alarms = append(alarms, p.alarm(w, AlarmImplausible, checkEarthField, level, th,
+				fmt.Sprintf("the Earth's field seen by the sensors (%s) is %.4g nT, outside earth_field %g to %g nT: fields in the wrong unit (sent as nT)? set earth_field = [0, 0] for sensors without the static field",
+					what, level, a.fieldLo, a.fieldHi)))
+		}
+	}
+	if a.Noise > 0 && out.DOF > 0 && chi2Implausible(out.Chi2, out.DOF) {
+		red := out.Chi2 / float64(out.DOF)
+		alarms = append(alarms, p.alarm(w, AlarmImplausible, checkChi2, red, maxImplausibleChi2,
+			fmt.Sprintf("reduced chi-square %.3g on %d degrees of freedom: the residuals are %.3g times the stated noise of %g nT; fields in the wrong unit, or the noise overstated?",
+				red, out.DOF, math.Sqrt(red), a.Noise)))
+	}
+	return alarms
+}
+
+// maxImplausibleChi2 and minChi2Tail bound chi2Implausible.
+const (
+	maxImplausibleChi2 = 0.01
+	minChi2Tail        = 1e-6
+)
+
+// chi2Implausible reports whether a fit's chi-square is too small for
+// its degrees of freedom to come from the stated noise: the reduced
+// chi-square below maxImplausibleChi2 (residuals a tenth of the noise or
+// less) and a lower-tail probability of the chi-square distribution with
+// dof degrees of freedom below minChi2Tail, so that few degrees of
+// freedom, whose chi-square is often small by chance (one in 12 below
+// 0.01 with one degree of freedom), are not flagged.
+func chi2Implausible(chi2 float64, dof int) bool {
+	if !(chi2/float64(dof) < maxImplausibleChi2) {
+		return false
+	}
+	return distuv.ChiSquared{K: float64(dof)}.CDF(chi2) < minChi2Tail
 }
 
 func cmplxAbs(c complex128) float64 { return math.Hypot(real(c), imag(c)) }

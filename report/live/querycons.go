@@ -9,6 +9,7 @@ import (
 	"strconv"
 	"time"
 
+	"github.com/nats-io/nats.go"
 	"github.com/nats-io/nats.go/jetstream"
 )
 
@@ -91,7 +92,11 @@ func (q *rangeQuery) position(ctx context.Context, seq uint64) (uint64, error) {
 		return c.pending, nil
 	}
 	if c.cons != nil && c.reset && seq >= c.start {
-		resp, err := q.s.stores.JS.ResetConsumerToSequence(ctx, q.stream, c.name, seq)
+		var resp *jetstream.ConsumerResetResponse
+		err := q.retry(ctx, "consumer reset", func() (err error) {
+			resp, err = q.s.stores.JS.ResetConsumerToSequence(ctx, q.stream, c.name, seq)
+			return err
+		})
 		if err != nil {
 			return 0, q.fail(fmt.Errorf("moving the query consumer to sequence %d: %w", seq, err))
 		}
@@ -107,15 +112,19 @@ func (q *rangeQuery) position(ctx context.Context, seq uint64) (uint64, error) {
 	// fallback): a new one.
 	q.close()
 	c.name = newConsumerName()
-	cons, err := q.s.stores.JS.CreateConsumer(ctx, q.stream, jetstream.ConsumerConfig{
-		Name:              c.name,
-		FilterSubject:     q.subject,
-		DeliverPolicy:     jetstream.DeliverByStartSequencePolicy,
-		OptStartSeq:       seq,
-		AckPolicy:         jetstream.AckNonePolicy,
-		MemoryStorage:     true,
-		Replicas:          1,
-		InactiveThreshold: queryInactive,
+	var cons jetstream.Consumer
+	err := q.retry(ctx, "consumer create", func() (err error) {
+		cons, err = q.s.stores.JS.CreateConsumer(ctx, q.stream, jetstream.ConsumerConfig{
+			Name:              c.name,
+			FilterSubject:     q.subject,
+			DeliverPolicy:     jetstream.DeliverByStartSequencePolicy,
+			OptStartSeq:       seq,
+			AckPolicy:         jetstream.AckNonePolicy,
+			MemoryStorage:     true,
+			Replicas:          1,
+			InactiveThreshold: queryInactive,
+		})
+		return err
 	})
 	if err != nil {
 		return 0, q.fail(fmt.Errorf("creating the query consumer: %w", err))
@@ -185,6 +194,52 @@ func (q *rangeQuery) drain(ctx context.Context) error {
 	for {
 		_, _, ok, err := q.recv(ctx)
 		if err != nil || !ok {
+			return err
+		}
+	}
+}
+
+// queryRetries and queryRetryWait bound the retries of a query step that
+// nobody answered: up to queryRetries more tries, waiting queryRetryWait,
+// then twice that, and so on (375 ms in all).
+const (
+	queryRetries   = 4
+	queryRetryWait = 25 * time.Millisecond
+)
+
+// queryRetryable reports whether a query step that failed with err may
+// succeed when tried again at once: no responders. On a cluster a fetch
+// from a query consumer just created can reach the client's node before
+// the consumer's interest does (1-4% of queries on three nodes answered
+// 502 "no responders" without it), and a lookup can fall between stream
+// leaders. A request nobody received changed nothing, so it can be sent
+// again.
+func queryRetryable(err error) bool { return errors.Is(err, nats.ErrNoResponders) }
+
+// again reports whether retry attempt (from 0) of the query step what,
+// which failed with err, should be made, after waiting for it.
+func (q *rangeQuery) again(ctx context.Context, attempt int, what string, err error) bool {
+	if attempt >= queryRetries || !queryRetryable(err) || ctx.Err() != nil {
+		return false
+	}
+	if h := q.s.queryRetryHook.Load(); h != nil {
+		(*h)(what)
+	}
+	q.s.log.Debug("query step not answered; trying again", "query", q.query, "stream", q.stream, "step", what, "attempt", attempt+1, "err", err)
+	select {
+	case <-ctx.Done():
+		return false
+	case <-time.After(queryRetryWait << attempt):
+		return true
+	}
+}
+
+// retry runs step, again while it fails for want of responders (see
+// again).
+func (q *rangeQuery) retry(ctx context.Context, what string, step func() error) error {
+	for attempt := 0; ; attempt++ {
+		err := step()
+		if err == nil || !q.again(ctx, attempt, what, err) {
 			return err
 		}
 	}

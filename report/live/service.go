@@ -80,6 +80,9 @@ type Service struct {
 	// noConsumerReset (tests) makes queries behave as against a broker
 	// without the consumer reset.
 	noConsumerReset atomic.Bool
+	// queryRetryHook, when set (tests), is called with each query step
+	// about to be tried again (see rangeQuery.again).
+	queryRetryHook atomic.Pointer[func(step string)]
 
 	// storeFull holds the error of the last write the broker refused for
 	// want of storage, until a write succeeds again (see noteStore).
@@ -178,10 +181,16 @@ func (s *Service) Run(ctx context.Context) error {
 	sctx, cancel := context.WithTimeout(ctx, 30*time.Second)
 	s.stores, err = broker.Setup(sctx, js, broker.StreamSettings{
 		Replicas: s.site.Broker.Replicas, DataMaxAge: s.site.Broker.DataRetention.Duration, DataMaxBytes: s.site.Broker.DataMaxBytes,
-		LeaseTTL: s.site.Service.LeaseTTL.Duration, Memory: s.memory})
+		DeadLetterMaxBytes: s.site.Broker.DLQMaxBytes, DeadLetterDefault: s.site.dlqDefault(), LeaseTTL: s.site.Service.LeaseTTL.Duration, Memory: s.memory})
 	cancel()
 	if err != nil {
 		return fmt.Errorf("live: %w", err)
+	}
+	if n := s.stores.DeadLetterMaxBytes; n > 0 {
+		s.log.Info("dead letters kept up to a bound, the oldest giving way", "stream", broker.StreamDeadLetter, "max_bytes", n, "max_age", broker.DeadLetterMaxAge)
+	} else {
+		s.log.Warn("the store cannot reserve room for a bounded dead-letter stream: refused messages are kept unbounded for their max age (set broker.dlq_max_bytes, or give the store more room)",
+			"stream", broker.StreamDeadLetter, "max_age", broker.DeadLetterMaxAge)
 	}
 	var srv *http.Server
 	if s.httpAddr != "-" {
@@ -413,6 +422,16 @@ func storeRefused(err error) bool {
 	return err != nil && strings.Contains(err.Error(), "insufficient resources")
 }
 
+// storeFullAdvice is the ERROR logged when the broker's store fills. The
+// embedded broker without broker.store_max_bytes raises its store bound
+// when disk space is freed (serve looks every 15 s); a store_max_bytes and
+// the stream bounds are read at start, so changing them takes effect only
+// after a restart.
+const storeFullAdvice = "the broker's store is full: no lease, estimate or sensor batch can be stored until space is freed. " +
+	"Free disk space (the embedded broker without broker.store_max_bytes takes it up within 15 s), " +
+	"or raise broker.store_max_bytes, or lower broker.data_retention, broker.data_max_bytes or broker.dlq_max_bytes, and restart serve " +
+	"(a cluster's own limits are in the nats-server configuration)"
+
 // noteStore follows the outcome of a write to the broker: a write refused
 // for want of storage marks the store full (logged at ERROR, /readyz
 // failing, uc_store_full 1: leases cannot be renewed nor estimates stored,
@@ -429,7 +448,7 @@ func (s *Service) noteStore(err error) {
 		msg := err.Error()
 		if s.storeFull.Swap(&msg) == nil {
 			s.met.storeFull.Set(1)
-			s.log.Error("the broker's store is full: no lease, estimate or sensor batch can be stored until space is freed (raise the store's size, or lower broker.data_retention or set broker.data_max_bytes)", "err", err)
+			s.log.Error(storeFullAdvice, "err", err)
 		}
 	}
 }

@@ -86,6 +86,22 @@ type BrokerConfig struct {
 	// DataMaxBytes bounds the raw sensor batches kept, bytes: past it the
 	// oldest give way to new ones. 0 means no bound but data_retention.
 	DataMaxBytes int64 `toml:"data_max_bytes"`
+	// DLQMaxBytes bounds the dead letters kept (refused messages, stream
+	// UC_DLQ, seven days at most), bytes: past it the oldest give way.
+	// The broker reserves it in its store, and serve stops at start when
+	// it cannot. 0 means dlqDefault: a quarter of data_max_bytes (at least
+	// four times service.max_message_bytes, the most of a refused payload
+	// a dead letter keeps) when that is set, else 256 MiB; cut to about a
+	// quarter of the room left on a store that cannot reserve four times
+	// that, down to 4 MiB (a store smaller still leaves the dead letters
+	// unbounded).
+	DLQMaxBytes int64 `toml:"dlq_max_bytes"`
+	// StoreMaxBytes bounds the embedded broker's whole store, bytes; 0
+	// means nats-server's default, three quarters of the disk space free
+	// (plus of what the store holds), which serve raises when space is
+	// freed. A value given is read at start: after changing it, restart
+	// serve. Not used with --broker.
+	StoreMaxBytes int64 `toml:"store_max_bytes"`
 	// User and Password (or Token) are the credentials the service itself
 	// uses. Users lists the accounts of the embedded server; when it is
 	// non-empty, unauthenticated clients are refused.
@@ -122,11 +138,26 @@ type AssetConfig struct {
 	// is always set.
 	Start Start `toml:"start"`
 	// Noise is the sensor noise per sample, nT rms; 0 estimates it from
-	// the fit residuals.
-	Noise      float64           `toml:"noise"`
+	// the fit residuals. When given, a fit whose chi-square lies far below
+	// its degrees of freedom marks the window implausible (see
+	// chi2Implausible).
+	Noise float64 `toml:"noise"`
+	// EarthField is the range, nT, that the Earth's field seen by the
+	// sensors must lie in: the uniform background fitted with the currents
+	// (DC), or the median of the sensors' mean total fields (AC).
+	// Outside it the window is marked implausible (fields in the wrong
+	// unit: microtesla or picotesla sent as nanotesla). Unset means
+	// [15000, 80000] for DC (the geomagnetic field is about 22,000 to
+	// 67,000 nT at the surface, IGRF) and no check for AC, whose sensors
+	// may leave the static field out; [0, 0] turns the check off (sensors
+	// sending the field with a baseline taken off, gradiometers).
+	EarthField []float64         `toml:"earth_field"`
 	Sensors    []SensorConfig    `toml:"sensor"`
 	Conductors []ConductorConfig `toml:"conductor"`
 	Alarms     AlarmConfig       `toml:"alarms"`
+
+	// fieldLo, fieldHi are EarthField after validation (fieldHi 0: off).
+	fieldLo, fieldHi float64
 }
 
 // SensorConfig is one [[asset.sensor]].
@@ -310,6 +341,16 @@ func (s *Site) validate() error {
 	if s.Broker.DataMaxBytes < 0 {
 		return fmt.Errorf("broker.data_max_bytes %d: want 0 (no bound) or more", s.Broker.DataMaxBytes)
 	}
+	if s.Broker.StoreMaxBytes < 0 {
+		return fmt.Errorf("broker.store_max_bytes %d: want 0 (the server's default) or more", s.Broker.StoreMaxBytes)
+	}
+	minDLQ := 4 * int64(s.Service.MaxMessageBytes)
+	switch {
+	case s.Broker.DLQMaxBytes < 0:
+		return fmt.Errorf("broker.dlq_max_bytes %d: want 0 (the default) or more", s.Broker.DLQMaxBytes)
+	case s.Broker.DLQMaxBytes > 0 && s.Broker.DLQMaxBytes < minDLQ:
+		return fmt.Errorf("broker.dlq_max_bytes %d: want at least %d, four times service.max_message_bytes (the most of a refused message a dead letter keeps)", s.Broker.DLQMaxBytes, minDLQ)
+	}
 	if s.Broker.Replicas < 1 || s.Broker.Replicas > 5 {
 		return fmt.Errorf("broker.replicas %d: want 1 to 5", s.Broker.Replicas)
 	}
@@ -386,6 +427,15 @@ func (a *AssetConfig) validate(dir string) error {
 	if a.Noise < 0 || math.IsNaN(a.Noise) {
 		return fmt.Errorf("noise %v: want a non-negative value in nT", a.Noise)
 	}
+	switch f := a.EarthField; {
+	case f == nil && a.Mode == "dc":
+		a.fieldLo, a.fieldHi = defaultEarthField[0], defaultEarthField[1]
+	case f == nil:
+	case len(f) != 2 || !(f[0] >= 0) || !(f[1] >= f[0]) || math.IsInf(f[1], 0) || f[1] == f[0] && f[0] != 0:
+		return fmt.Errorf("earth_field %v: want [low, high] in nT with 0 <= low < high, or [0, 0] for no check", f)
+	default:
+		a.fieldLo, a.fieldHi = f[0], f[1]
+	}
 	if len(a.Sensors) == 0 {
 		return fmt.Errorf("no [[asset.sensor]] tables")
 	}
@@ -459,6 +509,23 @@ func (a *AssetConfig) validate(dir string) error {
 	}
 	return nil
 }
+
+// dlqDefault is the dead-letter bound aimed at when dlq_max_bytes is 0
+// (see BrokerConfig.DLQMaxBytes): a quarter of data_max_bytes, at least
+// four times max_message_bytes, when data_max_bytes is set; else 0, the
+// broker's default.
+func (s *Site) dlqDefault() int64 {
+	if s.Broker.DataMaxBytes == 0 {
+		return 0
+	}
+	return max(s.Broker.DataMaxBytes/4, 4*int64(s.Service.MaxMessageBytes))
+}
+
+// defaultEarthField is a DC asset's earth_field when the site file gives
+// none, nT: the geomagnetic field at the Earth's surface is about 22,000
+// to 67,000 nT (IGRF, from memory), widened for local anomalies; a field
+// in microtesla or picotesla sent as nanotesla is 1000 times off.
+var defaultEarthField = [2]float64{15000, 80000}
 
 // StartKind says which kind of start point a Start is.
 type StartKind int

@@ -168,7 +168,7 @@ func (s *Service) drainUnknown(ctx context.Context, oc *orphanConsumer) error {
 				cause = fmt.Errorf("live: subject %q: want %s.<asset>.<sensor>", m.Subject(), broker.DataPrefix)
 			}
 			dctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
-			err := broker.DeadLetter(dctx, s.stores.JS, oc.reason, m.Subject(), seq, m.Data(), cause)
+			err := broker.DeadLetter(dctx, s.stores.JS, oc.reason, m.Subject(), seq, m.Data(), s.site.Service.MaxMessageBytes, cause)
 			cancel()
 			if err != nil {
 				m.Nak()

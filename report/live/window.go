@@ -83,6 +83,9 @@ type assembler struct {
 	backlog    uint64
 	fresh      bool
 	resumeIdle time.Duration
+	// overlap is how many samples at or before its sensor's last sample
+	// addMsg dropped from the batch it was given last (data sent again).
+	overlap int
 }
 
 const boundaryEps = 1e-7
@@ -110,7 +113,7 @@ type addResult int
 
 const (
 	added      addResult = iota
-	outOfOrder           // first sample not after the sensor's last one
+	outOfOrder           // no sample after the sensor's last one
 	late                 // every sample falls in a closed window
 	outOfRange           // a time too large for a window index
 	heldBack             // far ahead of the other sensors: held (see assembler)
@@ -135,8 +138,10 @@ type heldBatch struct {
 const maxHeld = 16
 
 // add files the samples of b (sensor index s, stream sequence seq).
-// Samples before the end of the last closed window are dropped; dropped
-// reports how many.
+// A batch none of whose samples is after the sensor's last one is
+// outOfOrder; one that straddles it loses the samples at or before it
+// (a.overlap says how many) and files the rest. Samples before the end
+// of the last closed window are dropped; dropped reports how many.
 func (a *assembler) add(s int, seq uint64, b *broker.Batch, now time.Time) (res addResult, dropped int) {
 	return a.addMsg(s, seq, b, now, "", nil)
 }
@@ -155,8 +160,16 @@ func (a *assembler) addMsg(s int, seq uint64, b *broker.Batch, now time.Time, su
 	if seq > a.backlog {
 		a.fresh = true
 	}
-	if b.Time[0] <= a.water[s] {
+	a.overlap = 0
+	if b.Time[n-1] <= a.water[s] {
 		return outOfOrder, 0
+	}
+	if b.Time[0] <= a.water[s] {
+		// Straddles the sensor's last sample: data sent again (a gateway
+		// resending its buffer, a replay run again with other batch
+		// edges). The samples already had are dropped, the new ones kept.
+		b = trimBefore(b, a.water[s])
+		a.overlap = n - b.Len()
 	}
 	if q, k := a.others(now, s); k >= 2 && b.Time[0] > q+a.grace+a.L {
 		// Far ahead of every other sensor: either this sensor's clock
@@ -184,6 +197,18 @@ func (a *assembler) addMsg(s int, seq uint64, b *broker.Batch, now time.Time, su
 	res, dropped = a.accept(s, seq, b, now)
 	a.release(now)
 	return res, dropped
+}
+
+// trimBefore returns b without its samples at or before t (times
+// increase); the columns share b's arrays.
+func trimBefore(b *broker.Batch, t float64) *broker.Batch {
+	k := sort.Search(b.Len(), func(i int) bool { return b.Time[i] > t })
+	c := *b
+	c.Time, c.Bx, c.By, c.Bz = b.Time[k:], b.Bx[k:], b.By[k:], b.Bz[k:]
+	if b.Temp != nil {
+		c.Temp = b.Temp[k:]
+	}
+	return &c
 }
 
 // reject gives up the first k held batches of sensor s (see

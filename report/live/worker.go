@@ -66,6 +66,12 @@ type assetWorker struct {
 	// unreadable is when the data stream first failed to answer in a
 	// row (zero once it answers).
 	unreadable time.Time
+	// overlapLogged is when each sensor's overlapping data was last
+	// logged (see noteOverlap).
+	overlapLogged map[string]time.Time
+	// implausibleLogged holds the implausible checks the last window
+	// failed (logged when they began to fail).
+	implausibleLogged map[string]bool
 }
 
 func (s *Service) newAssetWorker(a *AssetConfig) (*assetWorker, error) {
@@ -411,7 +417,7 @@ func (w *assetWorker) handle(m jetstream.Msg) error {
 		return w.refuseRejected(t0)
 	case outOfOrder:
 		return w.deadLetter(broker.ReasonOutOfOrder, subj, seq, data,
-			fmt.Errorf("live: %s: batch starts at %v, not after the sensor's last sample", subj, b.Time[0]))
+			fmt.Errorf("live: %s: batch from %v to %v is not after the sensor's last sample (%v)", subj, b.Time[0], b.Time[b.Len()-1], w.asm.water[si]))
 	case late:
 		if replayed {
 			met.messages.WithLabelValues(w.asset.Name, "skipped").Inc()
@@ -422,11 +428,57 @@ func (w *assetWorker) handle(m jetstream.Msg) error {
 	}
 	w.lastData, w.silent = t0, false
 	met.messages.WithLabelValues(w.asset.Name, "accepted").Inc()
-	met.samples.WithLabelValues(w.asset.Name).Add(float64(b.Len()))
+	met.samples.WithLabelValues(w.asset.Name).Add(float64(b.Len() - w.asm.overlap))
+	if k := w.asm.overlap; k > 0 {
+		w.noteOverlap(sensor, subj, seq, k, b)
+	}
 	if err := w.refuseRejected(t0); err != nil {
 		return err
 	}
 	return w.closeReady(t0, 0)
+}
+
+// noteImplausible counts a window's implausible checks in
+// uc_implausible_windows_total and logs a WARN when a check starts to
+// fail, once until it passes again.
+func (w *assetWorker) noteImplausible(win *window, alarms []Alarm) {
+	failing := map[string]bool{}
+	for _, al := range alarms {
+		if al.Kind != AlarmImplausible {
+			continue
+		}
+		failing[al.Subject] = true
+		w.svc.met.implausible.WithLabelValues(w.asset.Name, al.Subject).Inc()
+		if !w.implausibleLogged[al.Subject] {
+			w.log.Warn("readings implausible: estimates are marked quality \"implausible\" while this lasts (logged once; counted in uc_implausible_windows_total)",
+				"check", al.Subject, "window", win.Index, "start", unixString(win.Start), "reason", al.Message)
+		}
+	}
+	for check := range w.implausibleLogged {
+		if !failing[check] {
+			w.log.Info("readings plausible again", "check", check, "window", win.Index)
+		}
+	}
+	w.implausibleLogged = failing
+}
+
+// overlapLogEvery is how often, at most, an overlap of one sensor's data
+// is logged (every one is counted in uc_overlap_samples_total).
+const overlapLogEvery = time.Minute
+
+// noteOverlap counts the k samples of a batch (b, as sent) that repeated
+// what its sensor had already sent, dropped by the assembler while the
+// rest were filed, and logs it once per overlapLogEvery per sensor.
+func (w *assetWorker) noteOverlap(sensor, subj string, seq uint64, k int, b *broker.Batch) {
+	w.svc.met.overlap.WithLabelValues(w.asset.Name).Add(float64(k))
+	if w.overlapLogged == nil {
+		w.overlapLogged = map[string]time.Time{}
+	}
+	if now := time.Now(); now.Sub(w.overlapLogged[sensor]) >= overlapLogEvery {
+		w.overlapLogged[sensor] = now
+		w.log.Info("batch overlaps data already received: the repeated samples are dropped, the rest kept (logged once a minute per sensor; counted in uc_overlap_samples_total)",
+			"subject", subj, "seq", seq, "repeated", k, "kept", b.Len()-k, "start", b.Time[0])
+	}
 }
 
 // silenceAtStart returns, for a worker taking the asset, when its data
@@ -592,7 +644,7 @@ func (w *assetWorker) deadLetter(reason, subj string, seq uint64, data []byte, c
 	w.log.Warn("message refused", "reason", reason, "seq", seq, "err", cause)
 	ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
 	defer cancel()
-	if err := broker.DeadLetter(ctx, w.svc.stores.JS, reason, subj, seq, data, cause); err != nil {
+	if err := broker.DeadLetter(ctx, w.svc.stores.JS, reason, subj, seq, data, w.svc.site.Service.MaxMessageBytes, cause); err != nil {
 		return err
 	}
 	if seq > w.asm.lastSeq {
@@ -726,6 +778,7 @@ func (w *assetWorker) publishWindow(win *window, r *reduced) error {
 	if est.Quality == "failed" {
 		met.estimates.WithLabelValues(w.asset.Name, "failed").Inc()
 	}
+	w.noteImplausible(win, alarms)
 	data, err := json.Marshal(est)
 	if err != nil {
 		return fmt.Errorf("live: asset %s: encode estimate: %w", w.asset.Name, err)
