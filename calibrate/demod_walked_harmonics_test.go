@@ -151,3 +151,64 @@ func TestFitSineHarmonicSlopes(t *testing.T) {
 		t.Errorf("residual %.3g nT RMS, want rounding", fit.RMS)
 	}
 }
+
+// TestDemodulatePathMean: a sensor walked over a cable sees the
+// amplitude curve within the window (near the peak, about travel²/(12 h²)
+// of the field), and the inverse models each window's phasor as the mean
+// of the field over the window's samples (Window.Travel). A fit with the
+// constant, cos, sin and the slope columns returns that mean over whole
+// cycles only to order 1/(ωT)², and each further column correlated both
+// with the curvature and with sin ωτ (the linear term, the harmonics'
+// slope columns) moved it further: with both, a walked 20 A cable under
+// 0.5 nT of noise read its current 3.2 sigma low and its depth 5.8 sigma
+// shallow on average (found while adding them). The curvature columns
+// ((τ-τ̄)² - m2) cos ωτ and sin ωτ take the curvature about the mean, so
+// that on a noise-free log whose amplitude is quadratic in time the
+// phasor is the construction's mean over each window's samples exactly,
+// whatever else is fitted.
+func TestDemodulatePathMean(t *testing.T) {
+	const (
+		fs, f = 2000.0, 50.0
+		n     = 2000
+	)
+	c := &Columns{Time: make([]float64, n)}
+	for k := range c.B {
+		c.B[k] = make([]float64, n)
+	}
+	ph := [3]complex128{complex(120, -35), complex(-40, 60), complex(15, 5)}
+	// The amplitude's relative change about t = 0.5 s: a peak passed at
+	// 1 m/s, 1.1 m below (a(t) = 1 - 0.4 (t-0.5) - 0.8 (t-0.5)²).
+	amp := func(tt float64) float64 { d := tt - 0.5; return 1 - 0.4*d - 0.8*d*d }
+	w := 2 * math.Pi * f
+	for i := range n {
+		tt := float64(i) / fs
+		c.Time[i] = tt
+		e := cmplx.Rect(math.Sqrt2*amp(tt), w*tt)
+		for k := range 3 {
+			c.B[k][i] = 20000*float64(k-1) + real(ph[k]*e)
+		}
+	}
+	for _, set := range []DemodSettings{
+		{Freq: f, Window: 0.2},
+		{Freq: f, Window: 0.2, Drift: true},
+		{Freq: f, Window: 0.2, Drift: true, Harmonics: []int{3, 5}},
+	} {
+		res, err := DemodulateColumns(c, &set)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for i, win := range res.Windows {
+			var mean float64
+			for j := range 400 {
+				mean += amp(c.Time[i*400+j])
+			}
+			mean /= 400
+			for k := range 3 {
+				want := ph[k] * complex(mean, 0)
+				if d := cmplx.Abs(win.B[k] - want); d > 1e-9*cmplx.Abs(want) {
+					t.Errorf("drift %v, harmonics %v, window %d axis %d: B %.9g, want the mean over the window %.9g (off by %.3g nT)", set.Drift, set.Harmonics, i, k, win.B[k], want, d)
+				}
+			}
+		}
+	}
+}

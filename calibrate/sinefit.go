@@ -13,10 +13,11 @@ import (
 //
 //	y(t) ≈ A cos ω(t-T0) + B sin ω(t-T0) + C [+ Σ harmonics] [+ D (t-T0)]
 //	       [+ (t-t̄) (E cos ω(t-T0) + F sin ω(t-T0))]
+//	       [+ ((t-t̄)² - m2) (G cos ω(t-T0) + H sin ω(t-T0))]
 //	       [+ (t-t̄) Σ_h (E_h cos hω(t-T0) + F_h sin hω(t-T0))],
 //
-// with ω = 2π Freq and t̄ the mean time (Slope holds E and F,
-// HarmonicSlopes each E_h and F_h).
+// with ω = 2π Freq, t̄ the mean time and m2 the mean of (t-t̄)² (Slope
+// holds E and F, Curve G and H, HarmonicSlopes each E_h and F_h).
 type SineFit struct {
 	A, B, C float64
 	// Freq is the frequency fitted, Hz, and T0 the time origin of the
@@ -32,8 +33,13 @@ type SineFit struct {
 	// for): the fundamental's linear change across the fit. A and B are
 	// then its coefficients at t̄.
 	Slope [2]float64
-	// HarmonicSlopes holds the same for each harmonic, in the order of
-	// Harmonics (only with Slope).
+	// Curve holds the coefficients of ((t-t̄)² - m2) cos ω(t-T0) and
+	// ((t-t̄)² - m2) sin ω(t-T0) (only with Slope): the fundamental's
+	// quadratic change about its mean over the fit, so that A and B are
+	// the mean of the amplitude over the samples (DemodSettings).
+	Curve [2]float64
+	// HarmonicSlopes holds the same as Slope for each harmonic, in the
+	// order of Harmonics (only with Slope).
 	HarmonicSlopes [][2]float64
 	// RMS is the root-mean-square residual and Sigma the residual standard
 	// deviation sqrt(RSS/(n-p)).
@@ -72,9 +78,10 @@ type SineSettings struct {
 	Drift bool
 	// Slope adds the columns (t-t̄) cos ω(t-T0) and (t-t̄) sin ω(t-T0), t̄
 	// the mean time: a linear change of the fundamental's amplitude and
-	// phase (DemodSettings.ConstantAmplitude), and the same columns for
-	// each harmonic. FitSine only: FitSine4 refuses it, since with a
-	// frequency to fit the two are not told apart.
+	// phase (DemodSettings.ConstantAmplitude), the quadratic change about
+	// the mean (SineFit.Curve), and the linear change of each harmonic.
+	// FitSine only: FitSine4 refuses it, since with a frequency to fit the
+	// two are not told apart.
 	Slope bool
 	// MaxIter bounds the four-parameter iterations. Zero means 30.
 	MaxIter int
@@ -100,17 +107,21 @@ func FitSine(t, y []float64, freq float64, set *SineSettings) (SineFit, error) {
 	}
 	p := q
 	if ss.Slope {
-		p += 2 + 2*len(ss.Harmonics)
+		p += 4 + 2*len(ss.Harmonics)
 	}
 	if len(t) <= p {
 		return SineFit{}, fmt.Errorf("calibrate: sine fit: %d samples for %d parameters", len(t), p)
 	}
 	t0 := t[0]
-	var tm float64 // mean of t - t0
+	var tm, m2 float64 // mean of t - t0, and of (t - t0 - tm)²
 	for _, ti := range t {
 		tm += ti - t0
 	}
 	tm /= float64(len(t))
+	for _, ti := range t {
+		m2 += (ti - t0 - tm) * (ti - t0 - tm)
+	}
+	m2 /= float64(len(t))
 	X := mat.NewDense(len(t), p, nil)
 	row := make([]float64, p)
 	w := 2 * math.Pi * freq
@@ -119,8 +130,9 @@ func FitSine(t, y []float64, freq float64, set *SineSettings) (SineFit, error) {
 		if ss.Slope {
 			tc := ti - t0 - tm
 			row[q], row[q+1] = tc*row[0], tc*row[1]
+			row[q+2], row[q+3] = (tc*tc-m2)*row[0], (tc*tc-m2)*row[1]
 			for j := range ss.Harmonics {
-				row[q+2+2*j], row[q+3+2*j] = tc*row[3+2*j], tc*row[4+2*j]
+				row[q+4+2*j], row[q+5+2*j] = tc*row[3+2*j], tc*row[4+2*j]
 			}
 		}
 		X.SetRow(i, row)
@@ -138,8 +150,9 @@ func FitSine(t, y []float64, freq float64, set *SineSettings) (SineFit, error) {
 	}
 	if ss.Slope {
 		f.Slope = [2]float64{beta[q], beta[q+1]}
+		f.Curve = [2]float64{beta[q+2], beta[q+3]}
 		for j := range ss.Harmonics {
-			f.HarmonicSlopes = append(f.HarmonicSlopes, [2]float64{beta[q+2+2*j], beta[q+3+2*j]})
+			f.HarmonicSlopes = append(f.HarmonicSlopes, [2]float64{beta[q+4+2*j], beta[q+5+2*j]})
 		}
 	}
 	f.RMS = math.Sqrt(rss / float64(len(t)))
