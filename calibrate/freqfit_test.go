@@ -13,12 +13,22 @@ import (
 // refDesign is the design matrix of the sine-fit model at angular
 // frequency w on the times tt (basis origin tt[0]), built column by column
 // from math.Sincos: cos, sin, 1, the cos and sin of each harmonic, τ when
-// drift is set.
-func refDesign(tt []float64, w float64, harmonics []int, drift bool) *mat.Dense {
-	p := 3 + 2*len(harmonics)
+// drift is set, and with hslope (τ-τ̄) cos and (τ-τ̄) sin of each harmonic
+// (τ̄ the mean of τ; DemodSettings.Harmonics).
+func refDesign(tt []float64, w float64, harmonics []int, drift, hslope bool) *mat.Dense {
+	q := 3 + 2*len(harmonics)
 	if drift {
-		p++
+		q++
 	}
+	p := q
+	if hslope {
+		p += 2 * len(harmonics)
+	}
+	var tm float64
+	for _, ti := range tt {
+		tm += ti - tt[0]
+	}
+	tm /= float64(len(tt))
 	X := mat.NewDense(len(tt), p, nil)
 	for i, ti := range tt {
 		tau := ti - tt[0]
@@ -32,7 +42,14 @@ func refDesign(tt []float64, w float64, harmonics []int, drift bool) *mat.Dense 
 			X.Set(i, 4+2*j, sh)
 		}
 		if drift {
-			X.Set(i, p-1, tau)
+			X.Set(i, q-1, tau)
+		}
+		if hslope {
+			for j, h := range harmonics {
+				sh, ch := math.Sincos(float64(h) * w * tau)
+				X.Set(i, q+2*j, (tau-tm)*ch)
+				X.Set(i, q+1+2*j, (tau-tm)*sh)
+			}
 		}
 	}
 	return X
@@ -44,10 +61,10 @@ func refDesign(tt []float64, w float64, harmonics []int, drift bool) *mat.Dense 
 // squares and the frequency column d = τ(-A sin ωτ + B cos ωτ) of the
 // four-parameter algorithm of IEEE Std 1057 section 4.1.3.3 at the fitted
 // A, B (the fundamental's derivative ∂y/∂ω).
-func refLinear(t *testing.T, tt, y []float64, w float64, harmonics []int, drift bool) (r []float64, rss float64, d []float64) {
+func refLinear(t *testing.T, tt, y []float64, w float64, harmonics []int, drift, hslope bool) (r []float64, rss float64, d []float64) {
 	t.Helper()
 	n := len(tt)
-	X := refDesign(tt, w, harmonics, drift)
+	X := refDesign(tt, w, harmonics, drift, hslope)
 	yv := mat.NewVecDense(n, nil)
 	for i := range y {
 		yv.SetVec(i, y[i]-y[0])
@@ -81,12 +98,15 @@ func refLinear(t *testing.T, tt, y []float64, w float64, harmonics []int, drift 
 // returns the frequency, Hz, and its one-sigma, Hz, from the last diagonal
 // entry of R (1/R² is the frequency's variance with rows weighted by
 // 1/s_k, s_k² = RSS_k/(n-p-1)).
-func refJointFit(t *testing.T, tt []float64, ys [][]float64, freq0 float64, harmonics []int, drift bool) (freq, sigma float64) {
+func refJointFit(t *testing.T, tt []float64, ys [][]float64, freq0 float64, harmonics []int, drift, hslope bool) (freq, sigma float64) {
 	t.Helper()
 	n := len(tt)
 	p := 3 + 2*len(harmonics)
 	if drift {
 		p++
+	}
+	if hslope {
+		p += 2 * len(harmonics)
 	}
 	var axes [][]float64
 	for _, y := range ys {
@@ -103,9 +123,9 @@ func refJointFit(t *testing.T, tt []float64, ys [][]float64, freq0 float64, harm
 	for it := 0; it < 100; it++ {
 		J := mat.NewDense(m*n, m*p+1, nil)
 		rhs := mat.NewVecDense(m*n, nil)
-		X := refDesign(tt, w, harmonics, drift)
+		X := refDesign(tt, w, harmonics, drift, hslope)
 		for k, y := range axes {
-			_, rss, d := refLinear(t, tt, y, w, harmonics, drift)
+			_, rss, d := refLinear(t, tt, y, w, harmonics, drift, hslope)
 			s := 1 / math.Sqrt(rss)
 			for i := 0; i < n; i++ {
 				for j := 0; j < p; j++ {
@@ -129,9 +149,9 @@ func refJointFit(t *testing.T, tt []float64, ys [][]float64, freq0 float64, harm
 	}
 	// The covariance at the converged frequency, rows weighted by 1/s_k.
 	J := mat.NewDense(m*n, m*p+1, nil)
-	X := refDesign(tt, w, harmonics, drift)
+	X := refDesign(tt, w, harmonics, drift, hslope)
 	for k, y := range axes {
-		_, rss, d := refLinear(t, tt, y, w, harmonics, drift)
+		_, rss, d := refLinear(t, tt, y, w, harmonics, drift, hslope)
 		s := 1 / math.Sqrt(rss/float64(n-p-1))
 		for i := 0; i < n; i++ {
 			for j := 0; j < p; j++ {
@@ -165,7 +185,7 @@ func refProfileFreq(t *testing.T, tt []float64, ys [][]float64, freq0 float64, d
 	eval := func(x float64) (f, g float64) {
 		w := w0 + x/span
 		for _, y := range ys {
-			r, rss, d := refLinear(t, tt, y, w, nil, drift)
+			r, rss, d := refLinear(t, tt, y, w, nil, drift, false)
 			var dr float64
 			for i := range r {
 				dr += d[i] * r[i]
@@ -276,7 +296,7 @@ func TestDemodulateEstimateFreqMatchesReference(t *testing.T) {
 					lo := i * hop
 					tt := c.Time[lo : lo+n]
 					ys := [][]float64{c.B[0][lo : lo+n], c.B[1][lo : lo+n], c.B[2][lo : lo+n]}
-					want, sigma := refJointFit(t, tt, ys, set.Freq, set.Harmonics, set.Drift)
+					want, sigma := refJointFit(t, tt, ys, set.Freq, set.Harmonics, set.Drift, !constant)
 					if d := math.Abs(w.Freq-want) / want; d > tolFreq {
 						t.Errorf("window %d: %.12f Hz, reference %.12f Hz (relative %.2g)", i, w.Freq, want, d)
 					}
@@ -339,7 +359,7 @@ func TestDemodulateFreqNotGivenIsFourParameterFit(t *testing.T) {
 		t.Fatal(err)
 	}
 	const m = 16384
-	want, _ := refJointFit(t, c.Time[:m], [][]float64{c.B[0][:m], c.B[1][:m], c.B[2][:m]}, res.Freq, nil, false)
+	want, _ := refJointFit(t, c.Time[:m], [][]float64{c.B[0][:m], c.B[1][:m], c.B[2][:m]}, res.Freq, nil, false, false)
 	if d := math.Abs(res.Freq-want) / want; d > tol {
 		t.Errorf("estimated %.12f Hz, the joint four-parameter fit moves it to %.12f Hz (relative %.2g)", res.Freq, want, d)
 	}

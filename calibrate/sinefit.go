@@ -12,9 +12,12 @@ import (
 // IEEE Std 1241):
 //
 //	y(t) ≈ A cos ω(t-T0) + B sin ω(t-T0) + C [+ Σ harmonics] [+ D (t-T0)]
-//	       [+ (t-t̄) (E cos ω(t-T0) + F sin ω(t-T0))],
+//	       [+ (t-t̄) (E cos ω(t-T0) + F sin ω(t-T0))]
+//	       [+ ((t-t̄)² - m2) (G cos ω(t-T0) + H sin ω(t-T0))]
+//	       [+ (t-t̄) Σ_h (E_h cos hω(t-T0) + F_h sin hω(t-T0))],
 //
-// with ω = 2π Freq and t̄ the mean time (Slope holds E and F).
+// with ω = 2π Freq, t̄ the mean time and m2 the mean of (t-t̄)² (Slope
+// holds E and F, Curve G and H, HarmonicSlopes each E_h and F_h).
 type SineFit struct {
 	A, B, C float64
 	// Freq is the frequency fitted, Hz, and T0 the time origin of the
@@ -30,6 +33,14 @@ type SineFit struct {
 	// for): the fundamental's linear change across the fit. A and B are
 	// then its coefficients at t̄.
 	Slope [2]float64
+	// Curve holds the coefficients of ((t-t̄)² - m2) cos ω(t-T0) and
+	// ((t-t̄)² - m2) sin ω(t-T0) (only with Slope): the fundamental's
+	// quadratic change about its mean over the fit, so that A and B are
+	// the mean of the amplitude over the samples (DemodSettings).
+	Curve [2]float64
+	// HarmonicSlopes holds the same as Slope for each harmonic, in the
+	// order of Harmonics (only with Slope).
+	HarmonicSlopes [][2]float64
 	// RMS is the root-mean-square residual and Sigma the residual standard
 	// deviation sqrt(RSS/(n-p)).
 	RMS, Sigma float64
@@ -67,9 +78,10 @@ type SineSettings struct {
 	Drift bool
 	// Slope adds the columns (t-t̄) cos ω(t-T0) and (t-t̄) sin ω(t-T0), t̄
 	// the mean time: a linear change of the fundamental's amplitude and
-	// phase (DemodSettings.ConstantAmplitude). FitSine only: FitSine4
-	// refuses it, since with a frequency to fit the two are not told
-	// apart.
+	// phase (DemodSettings.ConstantAmplitude), the quadratic change about
+	// the mean (SineFit.Curve), and the linear change of each harmonic.
+	// FitSine only: FitSine4 refuses it, since with a frequency to fit the
+	// two are not told apart.
 	Slope bool
 	// MaxIter bounds the four-parameter iterations. Zero means 30.
 	MaxIter int
@@ -95,17 +107,21 @@ func FitSine(t, y []float64, freq float64, set *SineSettings) (SineFit, error) {
 	}
 	p := q
 	if ss.Slope {
-		p += 2
+		p += 4 + 2*len(ss.Harmonics)
 	}
 	if len(t) <= p {
 		return SineFit{}, fmt.Errorf("calibrate: sine fit: %d samples for %d parameters", len(t), p)
 	}
 	t0 := t[0]
-	var tm float64 // mean of t - t0
+	var tm, m2 float64 // mean of t - t0, and of (t - t0 - tm)²
 	for _, ti := range t {
 		tm += ti - t0
 	}
 	tm /= float64(len(t))
+	for _, ti := range t {
+		m2 += (ti - t0 - tm) * (ti - t0 - tm)
+	}
+	m2 /= float64(len(t))
 	X := mat.NewDense(len(t), p, nil)
 	row := make([]float64, p)
 	w := 2 * math.Pi * freq
@@ -114,6 +130,10 @@ func FitSine(t, y []float64, freq float64, set *SineSettings) (SineFit, error) {
 		if ss.Slope {
 			tc := ti - t0 - tm
 			row[q], row[q+1] = tc*row[0], tc*row[1]
+			row[q+2], row[q+3] = (tc*tc-m2)*row[0], (tc*tc-m2)*row[1]
+			for j := range ss.Harmonics {
+				row[q+4+2*j], row[q+5+2*j] = tc*row[3+2*j], tc*row[4+2*j]
+			}
 		}
 		X.SetRow(i, row)
 	}
@@ -130,6 +150,10 @@ func FitSine(t, y []float64, freq float64, set *SineSettings) (SineFit, error) {
 	}
 	if ss.Slope {
 		f.Slope = [2]float64{beta[q], beta[q+1]}
+		f.Curve = [2]float64{beta[q+2], beta[q+3]}
+		for j := range ss.Harmonics {
+			f.HarmonicSlopes = append(f.HarmonicSlopes, [2]float64{beta[q+4+2*j], beta[q+5+2*j]})
+		}
 	}
 	f.RMS = math.Sqrt(rss / float64(len(t)))
 	f.Sigma = math.Sqrt(rss / float64(len(t)-p))
@@ -492,7 +516,8 @@ const rssFloor = 1e-13
 // makes one pass over the samples to form the normal matrix of the
 // columns
 //
-//	cos ωτ, sin ωτ, 1, [harmonics], [τ], τ sin ωτ, τ cos ωτ
+//	cos ωτ, sin ωτ, 1, [harmonics], [τ], [harmonics' slopes],
+//	[nuisance], τ sin ωτ, τ cos ωτ
 //
 // (the same for the three axes, which share their times) and their
 // products with each axis's data. Per axis k, the three-parameter fit at
@@ -529,40 +554,45 @@ const rssFloor = 1e-13
 type freqFit struct {
 	harmonics []int
 	drift     bool
-	// nuisance lists frequencies fitted alongside (DemodSettings.Nuisance),
-	// with their slope columns when nuisanceSlope; their columns, which do
-	// not depend on ω, follow the basis columns in cols and are filled by
-	// load.
-	nuisance      []float64
-	nuisanceSlope bool
-	p             int          // linear parameters: 3, 2 per harmonic, 1 for drift, then the nuisance columns
-	n             int          // samples in the buffers
-	cols          [][]float64  // p basis columns, then τ sin ωτ and τ cos ωτ
-	ys            [3][]float64 // the window's series less their first value
-	yt            [3][]float64 // ys times τ (three-parameter case)
-	y1            [3]float64   // Σ ys per axis
-	times         windowTimes
-	t1, t2        float64      // Σ τ and Σ τ²
-	gram          []float64    // (p+2)×(p+2) normal matrix of cols, row-major
-	xty           [3][]float64 // colsᵀ y per axis
-	yy            [3]float64   // yᵀy per axis
-	l             []float64    // p×p Cholesky factor of the basis block
-	zs, zc        []float64    // the basis block's inverse times the columns τ sin ωτ and τ cos ωτ
-	b0            []float64    // scratch, p
+	// nuisance lists frequencies fitted alongside (DemodSettings.Nuisance);
+	// their columns, which do not depend on ω, follow the basis columns in
+	// cols and are filled by load.
+	nuisance []float64
+	// slope gives each harmonic and each nuisance frequency its slope
+	// columns (DemodSettings.Harmonics and Nuisance); the fundamental
+	// takes none, since with the frequency fitted the two are not told
+	// apart (the frequency is the slope of the phase). The harmonics'
+	// slope columns follow the basis columns (and τ), before the
+	// nuisance's.
+	slope  bool
+	p      int          // linear parameters: 3, 2 per harmonic, 1 for drift, 2 per harmonic with slope, then the nuisance columns
+	n      int          // samples in the buffers
+	cols   [][]float64  // p basis columns, then τ sin ωτ and τ cos ωτ
+	ys     [3][]float64 // the window's series less their first value
+	yt     [3][]float64 // ys times τ (three-parameter case)
+	y1     [3]float64   // Σ ys per axis
+	times  windowTimes
+	t1, t2 float64      // Σ τ and Σ τ²
+	gram   []float64    // (p+2)×(p+2) normal matrix of cols, row-major
+	xty    [3][]float64 // colsᵀ y per axis
+	yy     [3]float64   // yᵀy per axis
+	l      []float64    // p×p Cholesky factor of the basis block
+	zs, zc []float64    // the basis block's inverse times the columns τ sin ωτ and τ cos ωτ
+	b0     []float64    // scratch, p
 }
 
-func newFreqFit(harmonics []int, drift bool, nuisance []float64, nuisanceSlope bool) *freqFit {
+func newFreqFit(harmonics []int, drift bool, nuisance []float64, slope bool) *freqFit {
 	p := 3 + 2*len(harmonics)
 	if drift {
 		p++
 	}
-	if nuisanceSlope {
-		p += 4 * len(nuisance)
+	if slope {
+		p += 2*len(harmonics) + 4*len(nuisance)
 	} else {
 		p += 2 * len(nuisance)
 	}
 	m := p + 2
-	f := &freqFit{harmonics: harmonics, drift: drift, nuisance: nuisance, nuisanceSlope: nuisanceSlope, p: p,
+	f := &freqFit{harmonics: harmonics, drift: drift, nuisance: nuisance, slope: slope, p: p,
 		cols: make([][]float64, m),
 		gram: make([]float64, m*m),
 		l:    make([]float64, p*p),
@@ -607,7 +637,7 @@ func (f *freqFit) load(t []float64, y [3][]float64, grid *nuisanceGrid) int {
 			}
 		}
 		if grid == nil {
-			fillNuisance(cols, tau, f.nuisance, f.nuisanceSlope)
+			fillNuisance(cols, tau, f.nuisance, f.slope)
 		}
 	}
 	f.t1, f.t2 = 0, 0
@@ -657,7 +687,7 @@ func (f *freqFit) load(t []float64, y [3][]float64, grid *nuisanceGrid) int {
 // nuisanceStart is the index of the first nuisance column (p when none).
 func (f *freqFit) nuisanceStart() int {
 	nc := 2 * len(f.nuisance)
-	if f.nuisanceSlope {
+	if f.slope {
 		nc *= 2
 	}
 	return f.p - nc
@@ -677,6 +707,13 @@ func (f *freqFit) pass(w float64, axes ...int) error {
 		cols[j] = cols[j][:n]
 	}
 	fillBasis(cols[:p], &f.times, w, f.harmonics, f.drift)
+	if f.slope {
+		// The harmonics' slope columns, after the basis (and τ).
+		q := slopeStart(f.harmonics, f.drift)
+		for j := range f.harmonics {
+			fillSlope(cols[q+2*j], cols[q+1+2*j], cols[3+2*j], cols[4+2*j], f.times.tau)
+		}
+	}
 	ts, tc := cols[p], cols[p+1]
 	cs, sn := cols[0], cols[1]
 	for k, tau := range f.times.tau {

@@ -241,6 +241,40 @@ func estimateWindowFreq(ws []calibrate.Window, window float64) (est freqEstimate
 	return freqEstimate{freq: f, sigma: sgm, windows: n}, ok
 }
 
+// windowSNR is a window's clearest signal: the largest |B|/sigma over its
+// axes (0 when no axis has a sigma).
+func windowSNR(w calibrate.Window) float64 {
+	snr := 0.0
+	for k := 0; k < 3; k++ {
+		if w.Sigma[k] > 0 {
+			snr = math.Max(snr, abs(w.B[k])/w.Sigma[k])
+		}
+	}
+	return snr
+}
+
+// uncheckedWarning says why estimateWindowFreq found no frequency in the
+// windows ws (fitted with the frequency) and that the results assume
+// freq: fewer than freqCheckMinWindows windows with a clear signal
+// (freqCheckSNR), or enough of them whose frequencies disagree far beyond
+// their own sigmas, so that fewer than freqCheckMinWindows lie near their
+// median (freqMean's cut). Before, the first reason was given for both: a
+// three-phase circuit whose 160 windows all had a signal hundreds of
+// times their noise was said to have too few clear windows (found in
+// review).
+func uncheckedWarning(ws []calibrate.Window, freq float64) string {
+	clear := 0
+	for _, w := range ws {
+		if w.FreqSigma > 0 && !math.IsNaN(w.Freq) && windowSNR(w) >= freqCheckSNR {
+			clear++
+		}
+	}
+	if clear < freqCheckMinWindows {
+		return fmt.Sprintf("the AC frequency could not be checked: fewer than %d windows have a clear signal (the field %d times its noise on some axis), for example with a stronger field at another frequency nearby; the results assume the field runs at exactly %g Hz", freqCheckMinWindows, freqCheckSNR, freq)
+	}
+	return fmt.Sprintf("the AC frequency could not be checked: %d of %d windows have a clear signal, but their fitted frequencies disagree far beyond their own sigmas, and fewer than %d lie within 10 of their sigmas of the median (as where conductors of different phase overlap and the phase turns as the sensor walks, or where the frequency hops); the results assume the field runs at exactly %g Hz", clear, len(ws), freqCheckMinWindows, freq)
+}
+
 // stillTravel is the horizontal half-travel, m, below which a window is
 // taken as standing still.
 const stillTravel = 1e-3
@@ -293,15 +327,63 @@ type demodPlan struct {
 }
 
 // settings returns the demodulation settings at freq in windows of win
-// seconds, with harmonics h of freq fitted too: the mains and their odd
-// harmonics are fitted alongside (calibrate.MainsNuisance) unless freq is
-// a mains frequency.
+// seconds, with harmonics h of freq fitted too (signalHarmonics): the
+// mains and their odd harmonics are fitted alongside
+// (calibrate.MainsNuisance) unless freq is a mains frequency, and every
+// window takes a linear term (calibrate.DemodSettings.Drift): a sensor
+// walked through a steady field's gradient (a DC conductor, a cathodic
+// protection current, a magnetised pipe) sees it change linearly within
+// the window, and with the constant alone the slope leaked into the
+// phasors as an AC field proportional to the gradient, a go-and-return
+// pair at the DC conductor (a 30 A DC line walked at 1 m/s read as a
+// 50 Hz pair of 0.13 A·m on every traverse; found in review). Over ten
+// cycles the term costs about 0.3% of the phasors' sigma.
 func (pl demodPlan) settings(freq, win float64, h []int) *calibrate.DemodSettings {
-	set := &calibrate.DemodSettings{Freq: freq, Window: win, Harmonics: h}
+	set := &calibrate.DemodSettings{Freq: freq, Window: win, Harmonics: h, Drift: true}
 	if pl.fs > 0 && len(pl.mains) > 0 {
 		set.Nuisance = calibrate.MainsNuisance(freq, win, pl.fs, pl.mains, h)
 	}
 	return set
+}
+
+// ownHarmonics are the harmonics of the signal fitted in every window
+// (where demodPlan.signalHarmonics allows): a cable's current is rarely
+// a pure sine (the 3rd and 5th harmonics of the loads' currents run to
+// tens of percent of the fundamental on a low-voltage feeder), and a
+// walked sensor sees a harmonic's field change within the window, which
+// over whole cycles is not orthogonal to the fundamental's columns nor to
+// the frequency's. Left out of the demodulation at --freq, a 20% 3rd
+// harmonic set the frequency check off by 0.013 Hz (a false "frequency
+// off or wandered" warning and phases turning 63° from group to group),
+// and beside a second cable 120° apart it made the currents' sigmas 1.6
+// to 2.7 times too small (found in review).
+var ownHarmonics = []int{3, 5}
+
+// signalHarmonics returns the harmonics of ownHarmonics fitted at freq
+// in windows of win seconds: those below 0.45 of the sample rate (a
+// harmonic at or above the Nyquist frequency cannot be fitted) and apart
+// from the mains lines fitted beside the signal (apart).
+func (pl demodPlan) signalHarmonics(freq, win float64) []int {
+	var out []int
+	for _, h := range pl.apart(freq, win, ownHarmonics) {
+		if float64(h)*freq < 0.45*pl.fs {
+			out = append(out, h)
+		}
+	}
+	return out
+}
+
+// demodulate demodulates s at freq in windows of win seconds with the
+// signal's harmonics h fitted (settings), or, should that fail (a basis
+// too large for the window's samples), without them.
+func (pl demodPlan) demodulate(s *ingest.Samples, freq, win float64, h []int) (*calibrate.DemodResult, error) {
+	res, err := calibrate.Demodulate(s, pl.settings(freq, win, h))
+	if err != nil && len(h) > 0 {
+		if r2, err2 := calibrate.Demodulate(s, pl.settings(freq, win, nil)); err2 == nil {
+			return r2, nil
+		}
+	}
+	return res, err
 }
 
 // nearestMains returns the odd harmonic h of the mains frequency m (of
@@ -341,8 +423,13 @@ func (pl demodPlan) clash(freq, win float64) string {
 }
 
 // apart returns the harmonics of h whose frequencies (times freq) lie at
-// least calibrate.NuisanceSeparation from every odd mains harmonic.
+// least calibrate.NuisanceSeparation from every odd mains harmonic; all
+// of h when no mains are fitted beside freq (freq is itself a mains
+// frequency, whose harmonics are the mains' own).
 func (pl demodPlan) apart(freq, win float64, h []int) []int {
+	if calibrate.MainsNuisance(freq, win, pl.fs, pl.mains, nil) == nil {
+		return h
+	}
 	var out []int
 	for _, k := range h {
 		hh, m, ok := pl.nearestMains(float64(k) * freq)
@@ -459,7 +546,8 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 		win = defaultWindow(o.freq)
 	}
 	pl := demodPlan{mains: o.mains, fs: logRate(s)}
-	res, err := calibrate.Demodulate(s, pl.settings(o.freq, win, nil))
+	harm := pl.signalHarmonics(o.freq, win)
+	res, err := pl.demodulate(s, o.freq, win, harm)
 	if err != nil {
 		return nil, 0, nil, nil, err
 	}
@@ -472,16 +560,14 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 	if len(res.Windows) == 0 {
 		return res, win, res.Warnings, nil, nil
 	}
-	// The mains' odd harmonics, locked to the fundamental, would pull every
-	// window's frequency the same way (the frequency column τ sin ωτ is not
-	// orthogonal to them even over whole cycles); fitted alongside, they do
-	// not enter the frequency step. Those at or above the Nyquist frequency
-	// are left out.
+	// The signal's odd harmonics, locked to the fundamental, would pull
+	// every window's frequency the same way (the frequency column τ sin ωτ
+	// is not orthogonal to them even over whole cycles, nor to their change
+	// as the sensor walks); fitted alongside with their slope columns, as
+	// in the demodulation at --freq (signalHarmonics), they do not enter
+	// the frequency step.
 	var fit *calibrate.DemodResult
-	for _, h := range [][]int{{3, 5}, {3}, nil} {
-		// A harmonic of the signal on a mains line (3 x 16.7 = 50.1 Hz)
-		// would push that line out of the nuisance: the harmonic goes.
-		h = pl.apart(o.freq, win, h)
+	for _, h := range [][]int{harm, nil} {
 		set := pl.settings(o.freq, win, h)
 		set.EstimateFreq = true
 		set.Step = checkStep(len(res.Windows), win)
@@ -497,7 +583,7 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 	}
 	est, ok := estimateWindowFreq(fit.Windows, win)
 	if !ok {
-		return res, win, append(res.Warnings, fmt.Sprintf("the AC frequency could not be checked: fewer than %d windows have a clear signal (the field %d times its noise on some axis), for example with a stronger field at another frequency nearby; the results assume the field runs at exactly %g Hz", freqCheckMinWindows, freqCheckSNR, o.freq)), nil, nil
+		return res, win, append(res.Warnings, uncheckedWarning(fit.Windows, o.freq)), nil, nil
 	}
 	off := est.freq - o.freq
 	span := longestGroupSpan(res.Windows, win)
@@ -532,7 +618,7 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 	if c := win * o.freq; math.Abs(c-math.Round(c)) < 1e-6*c {
 		win2 = math.Round(c) / est.freq
 	}
-	again, err := calibrate.Demodulate(s, pl.settings(est.freq, win2, nil))
+	again, err := pl.demodulate(s, est.freq, win2, pl.signalHarmonics(est.freq, win2))
 	if err != nil {
 		return nil, 0, nil, nil, err
 	}

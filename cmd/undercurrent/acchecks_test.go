@@ -219,8 +219,10 @@ func TestLocateOffNominalMains(t *testing.T) {
 var estimatedRE = regexp.MustCompile(`AC frequency estimated at ([0-9.]+) ± ([0-9.]+) Hz`)
 
 // TestDemodulateACExact: a log at exactly the frequency given is
-// demodulated exactly as before the check (the same windows, bit for bit,
-// and no warning), with the default window and with --window.
+// demodulated exactly as without the check (the same windows, bit for bit,
+// and no warning), with the default window and with --window: at 50 Hz
+// with the signal's 3rd and 5th harmonics and a linear term fitted in
+// every window (demodPlan.settings).
 func TestDemodulateACExact(t *testing.T) {
 	sc, _ := scenario(t, "ac-walk-2khz.toml")
 	s, err := simulate.Simulate(sc)
@@ -237,7 +239,7 @@ func TestDemodulateACExact(t *testing.T) {
 		if w == 0 {
 			w = 10.0 / 50
 		}
-		want, err := calibrate.Demodulate(s, &calibrate.DemodSettings{Freq: 50, Window: w})
+		want, err := calibrate.Demodulate(s, &calibrate.DemodSettings{Freq: 50, Window: w, Harmonics: []int{3, 5}, Drift: true})
 		if err != nil {
 			t.Fatal(err)
 		}
