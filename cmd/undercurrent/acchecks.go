@@ -200,13 +200,7 @@ func estimateWindowFreq(ws []calibrate.Window, window float64) (est freqEstimate
 		if !(w.FreqSigma > 0) || math.IsNaN(w.Freq) {
 			continue
 		}
-		snr := 0.0
-		for k := 0; k < 3; k++ {
-			if w.Sigma[k] > 0 {
-				snr = math.Max(snr, abs(w.B[k])/w.Sigma[k])
-			}
-		}
-		if snr < freqCheckSNR {
+		if windowSNR(w) < freqCheckSNR {
 			continue
 		}
 		wgt := 1 / (w.FreqSigma * w.FreqSigma)
@@ -256,9 +250,8 @@ func windowSNR(w calibrate.Window) float64 {
 // uncheckedWarning says why estimateWindowFreq found no frequency in the
 // windows ws (fitted with the frequency) and that the results assume
 // freq: fewer than freqCheckMinWindows windows with a clear signal
-// (freqCheckSNR), or enough of them whose frequencies disagree far beyond
-// their own sigmas, so that fewer than freqCheckMinWindows lie near their
-// median (freqMean's cut). Before, the first reason was given for both: a
+// (freqCheckSNR), or enough of them whose frequencies disagree, so that
+// fewer than freqCheckMinWindows lie near their median (freqMean's cut). Before, the first reason was given for both: a
 // three-phase circuit whose 160 windows all had a signal hundreds of
 // times their noise was said to have too few clear windows (found in
 // review).
@@ -272,7 +265,7 @@ func uncheckedWarning(ws []calibrate.Window, freq float64) string {
 	if clear < freqCheckMinWindows {
 		return fmt.Sprintf("the AC frequency could not be checked: fewer than %d windows have a clear signal (the field %d times its noise on some axis), for example with a stronger field at another frequency nearby; the results assume the field runs at exactly %g Hz", freqCheckMinWindows, freqCheckSNR, freq)
 	}
-	return fmt.Sprintf("the AC frequency could not be checked: %d of %d windows have a clear signal, but their fitted frequencies disagree far beyond their own sigmas, and fewer than %d lie within 10 of their sigmas of the median (as where conductors of different phase overlap and the phase turns as the sensor walks, or where the frequency hops); the results assume the field runs at exactly %g Hz", clear, len(ws), freqCheckMinWindows, freq)
+	return fmt.Sprintf("the AC frequency could not be checked: %d of %d windows have a clear signal, but their fitted frequencies disagree, and fewer than %d lie near the median (within 10 of their own sigmas, or a quarter of the window's frequency resolution, 1/window), as where the windows' fits land on different tones or the frequency hops; the results assume the field runs at exactly %g Hz", clear, len(ws), freqCheckMinWindows, freq)
 }
 
 // stillTravel is the horizontal half-travel, m, below which a window is
