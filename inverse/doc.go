@@ -52,12 +52,19 @@
 // are orthogonal to those of az and dip: freeing the angles leaves the Cramer-Rao bound
 // on current and depth unchanged to first order. A single-traverse line is first fitted
 // with az perpendicular and dip 0 held (the seeding of the crossing is made for that),
-// then released and iterated from there, with az kept within 60 degrees of the
-// perpendicular (a line turned along the traverse no longer varies along it). When the
-// covariance shows the angles not determined (rank loss, a sigma above 15 degrees, or az
-// at that bound) a count of lines with such a line is rejected, and for the final fit
-// the angles are held perpendicular and level again and reported as not identifiable,
-// with a note saying why. Settings.Azimuth and Settings.Dip hold them on request. Bounds
+// then released and iterated from there, with az kept within 80 degrees of the
+// perpendicular (a line turned along the traverse no longer varies along it, and its
+// crossing runs off to infinity). A line ending within 10 degrees of that bound is
+// refitted with the bound at 88 degrees; when that turns it beyond 80 degrees and fits
+// better, the bound, not the readings, stopped it, and it is taken as at the bound.
+// When the covariance shows the angles not determined (rank loss, a sigma above 15
+// degrees) or az is at that bound, a count of lines with such a line is rejected, and
+// for the final fit (or when its line lies at the edge of the search region, or its
+// strongest line crosses the traverse's line beyond the readings' ends more than 60
+// degrees from the perpendicular) the angles are held perpendicular and level again and
+// reported as not identifiable, with a note saying why (for the bound, that the line
+// would cross the traverse at under 10 degrees, which a single traverse is not fitted
+// for). Settings.Azimuth and Settings.Dip hold them on request. Bounds
 // keep every line at least Settings.MinDepth below the lowest sensor.
 //
 // # Separable least squares (variable projection)

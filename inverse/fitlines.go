@@ -93,8 +93,20 @@ func FitLines(p *Problem, set *Settings) (*Result, error) {
 		// cable's azimuth held 10 degrees off for the phantom's sake, missing
 		// the readings by 50 times their noise.
 		bad, why = singleAnglesUndeterminedK(res, f.currentK())
+		if !bad {
+			bad, why = singleAnglesAtEdge(res, f.currentK())
+		}
+		if !bad {
+			bad, why = sv.obliqueBeyondEnd(res, f.currentK())
+		}
 	} else {
 		bad, why = singleAnglesUndetermined(res)
+		if !bad {
+			bad, why = singleAnglesAtEdge(res, 2)
+		}
+		if !bad {
+			bad, why = sv.obliqueBeyondEnd(res, 2)
+		}
 	}
 	if !bad {
 		return res, nil
@@ -105,7 +117,12 @@ func FitLines(p *Problem, set *Settings) (*Result, error) {
 		// The free fit stands (with its notes on what it did not resolve), or its error.
 		return res, err
 	}
-	if err == nil && !strings.Contains(why, "not resolved") {
+	// The free fit stopped at the azimuth's bound, or its line lies where its
+	// angles say nothing (the edge of the search, an oblique crossing beyond the
+	// readings' end): it is no answer with approximate sigmas, and only the
+	// angles held are tried.
+	notFitted := strings.Contains(why, AzimuthAtBoundNote) || strings.Contains(why, edgeOfSearchWhy) || strings.Contains(why, beyondEndWhy)
+	if err == nil && !strings.Contains(why, "not resolved") && !notFitted {
 		// The angles were fitted, only with a sigma too large for the
 		// linearisation: when holding them perpendicular and horizontal fits the
 		// readings worse than the free fit by more than chance allows, the held
@@ -122,10 +139,16 @@ func FitLines(p *Problem, set *Settings) (*Result, error) {
 		}
 	}
 	res2.Starts += f.starts
-	res2.Notes = append(res2.Notes, "azimuth and dip fitted from the traverse were not determined ("+why+"): held perpendicular to it and horizontal")
+	if notFitted {
+		// Not "not determined": the readings may well fix the angles, only
+		// beyond what the search allows.
+		res2.Notes = append(res2.Notes, "azimuth and dip were not fitted from the traverse ("+why+"): held perpendicular to it and horizontal")
+	} else {
+		res2.Notes = append(res2.Notes, "azimuth and dip fitted from the traverse were not determined ("+why+"): held perpendicular to it and horizontal")
+	}
 	if err == nil {
-		// The free fit did not determine the angles (one at the bound of its
-		// search, or lost to rank), but fitted the readings far better than
+		// The free fit did not give the angles (one at the bound of its
+		// search, lost to rank, or of a line placed where they say nothing), but fitted the readings far better than
 		// the angles held: the held fit's current and position are biased
 		// beyond their sigmas (a 15 A cable 50 degrees off the perpendicular,
 		// beyond the end of a 24 m traverse, read 24.6 ± 2.2 A held; a false
@@ -540,19 +563,163 @@ func (f *fitter) release(c *candidate) (*candidate, error) {
 		return c, nil
 	}
 	free.iters += c.iters
+	f.pressedByBound(free)
 	return free, nil
 }
 
 // singleAzimuthRange bounds the azimuth fitted from a single traverse about the
-// traverse's perpendicular (60 degrees: lines crossing it at 30 degrees or more). A fit
-// that reaches the bound is treated as not determining the azimuth.
-const singleAzimuthRange = 60 * math.Pi / 180
+// traverse's perpendicular (80 degrees: lines crossing it at 10 degrees or more). The
+// bound keeps a line from turning along the traverse, where its field no longer varies
+// along it and trades off against the background, and where the line's crossing of the
+// traverse, which the fit places, runs off to infinity. Within it, whether the readings
+// determine the azimuth is judged by its sigma (singleAngleLimit). A fit that ends at
+// the bound, or is held back by it (pressedByBound), does not give the azimuth, and the
+// report says so (AzimuthAtBoundNote). The bound was 60 degrees: a 5 A line 1.2 m deep
+// crossing 30 m traverses at 30 degrees ended at it on half the traverses, and at 25
+// degrees on nearly all, and those fits failed, although the readings fix its azimuth
+// to 0.1 degree (TestSingleTraverseObliqueCrossing).
+const singleAzimuthRange = 80 * math.Pi / 180
+
+// singleAzimuthProbe is the wider bound, about the traverse's perpendicular, of the
+// fit that pressedByBound repeats.
+const singleAzimuthProbe = 88 * math.Pi / 180
+
+// pressedByBound marks the lines of a single-traverse fit c whose azimuth the bound
+// (singleAzimuthRange) held back. A fit that presses against a bound need not end
+// exactly on it: the other parameters give way, and lines crossing traverses at 8
+// degrees were fitted 74 to 79.9 degrees from square with sigmas of 0.1 to 1 degree,
+// 1 to 10 sigma short, their currents 30 to 120% high. So when a line ends within 10
+// degrees of its bound, the fit is repeated with those lines' bounds at
+// singleAzimuthProbe, from c and from c with them turned to 84 degrees from square at
+// 1, 0.5 and 0.25 times their depth below the sensors (a line fitted too square to the
+// traverse reads deep: its field along the traverse is stretched by the secant of its
+// angle from square). When the best of these fits the readings better than c with one
+// of those lines beyond its bound, the bound, not the readings, decided where the line
+// ended, and its sigmas do not describe it: the line is marked (lineGeom.azPressed).
+// The repeated fit only tells: it is not reported, since lines that near the
+// traverse's direction are not fitted reliably (with the bound at 85 or 88 degrees, a
+// line crossing 30 m traverses at 6 degrees was read beyond 3 sigma on a quarter to a
+// half of the fits that passed).
+func (f *fitter) pressedByBound(c *candidate) {
+	c.sp.unpack(c.x)
+	const margin = 10 * math.Pi / 180
+	var near []int // no allocation for the usual fit, clear of the bound
+	for i, l := range c.sp.geom {
+		if !l.holdAz && l.azHi > l.azLo && (l.az < l.azLo+margin || l.az > l.azHi-margin) {
+			near = append(near, i)
+		}
+	}
+	if len(near) == 0 {
+		return
+	}
+	lines := append([]lineGeom(nil), c.sp.geom...)
+	for _, i := range near {
+		l := &lines[i]
+		mid := 0.5 * (l.azLo + l.azHi)
+		l.azLo, l.azHi = mid-singleAzimuthProbe, mid+singleAzimuthProbe
+	}
+	dips := append([]dipGeom(nil), c.sp.dips...)
+	starts := []start{{lines: lines, dips: dips}}
+	for _, m := range []float64{1, 0.5, 0.25} {
+		turned := append([]lineGeom(nil), lines...)
+		for _, i := range near {
+			l := &turned[i]
+			mid := 0.5 * (l.azLo + l.azHi)
+			l.az = mid + math.Copysign(0.5*(singleAzimuthRange+singleAzimuthProbe), l.az-mid)
+			l.z = f.sv.zmean - m*(f.sv.zmean-l.z)
+		}
+		starts = append(starts, start{lines: turned, dips: dips})
+	}
+	probe, err := f.bestOf(starts, false)
+	if err != nil || !(probe.rss < c.rss) {
+		return
+	}
+	probe.sp.unpack(probe.x)
+	for _, i := range near {
+		if g, az := &c.sp.geom[i], probe.sp.geom[i].az; az < g.azLo || az > g.azHi {
+			g.azPressed = true
+			c.memo = nil
+		}
+	}
+}
 
 // singleAngleLimit is the largest one-sigma uncertainty (radians, 15 degrees) of an
 // azimuth or dip fitted from a single traverse that is reported as determined. Beyond
 // it, or when the covariance shows rank loss, the angles are held as for a two-axis
 // log (see FitLines): a linearised sigma that large does not describe the uncertainty.
 const singleAngleLimit = 15 * math.Pi / 180
+
+// edgeOfSearchWhy is why singleAnglesAtEdge takes the angles fitted to a line at the
+// edge of the search region (EdgeOfSearchNote) as not determined.
+const edgeOfSearchWhy = "the line ran to the edge of the search region"
+
+// singleAnglesAtEdge reports whether a single-traverse result fitted the angles of a
+// line whose current exceeds k sigmas at the edge of the search region: angles fitted
+// to a line the search could not place say nothing. A cable beyond a traverse's end,
+// freed within 80 degrees of square, ran to the edge 67 degrees off it, reading 6.6 ±
+// 2.4 A of 15 A with an azimuth sigma of 9 degrees (TestHeldAnglesNotBiasedSilently).
+// FitLines judges its final fit so; the automatic count's guard refuses such a line
+// for where it lies (misplaced).
+func singleAnglesAtEdge(r *Result, k float64) (bool, string) {
+	for i, e := range r.Sources {
+		if e.Kind == "line" && math.Abs(e.Current) > k*e.CurrentSigma &&
+			(e.Identifiable.Azimuth || e.Identifiable.Dip) && slices.Contains(e.Notes, EdgeOfSearchNote) {
+			return true, fmt.Sprintf("line %d: %s", i+1, edgeOfSearchWhy)
+		}
+	}
+	return false, ""
+}
+
+// singleBeyondEndRange is how far from square to a single traverse (60 degrees) a line
+// that crosses the traverse's line beyond its ends may be fitted (obliqueBeyondEnd).
+const singleBeyondEndRange = 60 * math.Pi / 180
+
+// beyondEndWhy begins why obliqueBeyondEnd takes a line's angles as not fitted.
+const beyondEndWhy = "beyond the end of the readings"
+
+// obliqueBeyondEnd reports whether the strongest line of a single-traverse result r
+// (line 1, the conductor a route follows), its current over k sigmas and its azimuth
+// fitted, turns more than singleBeyondEndRange from square to the traverse and crosses
+// the traverse's line beyond its readings (farther from their centre than the
+// farthest reading), and says so. The readings see such a line over a short arc of
+// its field, from one side, and its angles are loosely fitted: a 15 A cable crossing
+// 50 degrees from square just past the end of a 24 m traverse was fitted 62 ± 5
+// degrees from square, -10.9 ± 1.8 A, 26 m from the readings' centre, and a route
+// started from that station read a false "current joining" beside it
+// (TestLocateFailedEndStationKeepsOut). FitLines holds the angles of such a fit
+// square, as it did while the azimuth was searched only 60 degrees either side of
+// square (singleAzimuthRange). Further lines are kept: a service crossing 8 m beyond
+// the ends of 12 m traverses, 61 degrees from square, was read 9.7 ± 1.0 A at 28.7 ±
+// 3.1 degrees (truth 10 A at 30), and the traverses' fits reached their noise.
+func (sv *survey) obliqueBeyondEnd(r *Result, k float64) (bool, string) {
+	if len(r.Sources) == 0 {
+		return false, ""
+	}
+	e := r.Sources[0]
+	if e.Kind != "line" || !e.Identifiable.Azimuth || !(math.Abs(e.Current) > k*e.CurrentSigma) {
+		return false, ""
+	}
+	d := [3]float64{e.Dir[0], e.Dir[1], 0}
+	n := norm(d)
+	if n == 0 {
+		return false, ""
+	}
+	d = scale(d, 1/n)
+	if math.Abs(dot(d, sv.t1)) <= math.Sin(singleBeyondEndRange) {
+		return false, ""
+	}
+	// Where the line's horizontal projection meets the traverse's line
+	// (centroid + t t1): t = ((P - c) x d) / (t1 x d), not zero here.
+	cr := sv.t1[0]*d[1] - sv.t1[1]*d[0]
+	pc := [2]float64{e.Point[0] - sv.centroid[0], e.Point[1] - sv.centroid[1]}
+	t := (pc[0]*d[1] - pc[1]*d[0]) / cr
+	if !(math.Abs(t) > sv.extent) {
+		return false, ""
+	}
+	off := math.Asin(math.Min(1, math.Abs(dot(d, sv.t1)))) * 180 / math.Pi
+	return true, fmt.Sprintf("line 1 crosses the traverse's line %.1f m from the readings' centre, %s (%.1f m), %.0f deg from square to it: seen over a short arc from one side, a line so oblique is not fitted from one traverse",
+		math.Abs(t), beyondEndWhy, sv.extent, off)
+}
 
 // singleAnglesUndetermined reports whether a single-traverse result fitted some line's
 // azimuth or dip without determining it: rank loss or a sigma beyond singleAngleLimit.
@@ -581,6 +748,9 @@ func singleAnglesUndeterminedK(r *Result, k float64) (bool, string) {
 		}
 		for _, n := range e.Notes {
 			if n == "azimuth not resolved by the data" || n == "dip not resolved by the data" {
+				return true, fmt.Sprintf("line %d: %s", i+1, n)
+			}
+			if strings.HasPrefix(n, AzimuthAtBoundNote) {
 				return true, fmt.Sprintf("line %d: %s", i+1, n)
 			}
 		}
@@ -964,6 +1134,11 @@ func (f *fitter) bestOf(starts []start, quick bool) (*candidate, error) {
 		if sub != f.sv {
 			// The full-data separable of a polished start gets its own geometry.
 			geom, dips = append([]lineGeom(nil), geom...), append([]dipGeom(nil), dips...)
+		}
+		for i := range geom {
+			// Whether a bound held a line back is found for the fit that
+			// ends (pressedByBound), not inherited by one it starts.
+			geom[i].azPressed = false
 		}
 		sp := newSeparableIn(f.scr, sub.pts, sub.y, sub.nrhs, f.set.Background, f.sv.centroid, geom, dips)
 		sp.ptsLo, sp.ptsHi = sub.lo, sub.hi

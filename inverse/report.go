@@ -366,9 +366,12 @@ func (f *fitter) summariseAsIs(c *candidate) (*summary, error) {
 		j := off + 2
 		if !g.holdAz {
 			e.AzimuthSigma = sigmaOf(l*nq + qAzimuth)
-			if unres[j] || g.atAzBound() {
+			if unres[j] {
 				id.Azimuth = false
 				e.Notes = append(e.Notes, "azimuth not resolved by the data")
+			} else if g.atAzBound() {
+				id.Azimuth = false
+				e.Notes = append(e.Notes, azimuthAtBoundNote())
 			}
 			j++
 		} else if f.sv.single && f.set.Azimuth == nil {
@@ -520,6 +523,19 @@ func (f *fitter) summariseAsIs(c *candidate) (*summary, error) {
 // readings): it marks no buried conductor, and stands for field the other lines leave
 // unexplained, often the noise of readings close to it.
 const AboveSensorsNote = "the line passes above the sensors near the readings' centre (it dips steeply): not a buried conductor; it stands for field the other lines leave unexplained"
+
+// AzimuthAtBoundNote begins the note (SourceEstimate.Notes) of a line fitted from a
+// single traverse whose azimuth ended at the bound of the search about the traverse's
+// perpendicular (singleAzimuthRange), or was held back by it: the readings would turn
+// the line nearer the traverse's direction than a single traverse is fitted for, or
+// the search ran astray; either way the azimuth is not given.
+const AzimuthAtBoundNote = "azimuth stopped at the bound of the single-traverse search"
+
+// azimuthAtBoundNote returns the note of a line at the azimuth bound (AzimuthAtBoundNote).
+func azimuthAtBoundNote() string {
+	b := singleAzimuthRange * 180 / math.Pi
+	return fmt.Sprintf("%s, %.0f deg either side of square to the traverse: the readings would turn the line to cross the traverse at under %.0f deg, nearly along it, which one traverse is not fitted for", AzimuthAtBoundNote, b, 90-b)
+}
 
 // EdgeOfSearchNote is the note (SourceEstimate.Notes) of a line that lies at the edge
 // of the region searched across the readings (twice their extent plus 5 m from their

@@ -141,10 +141,12 @@ func TestSingleTraverseAnglesMonteCarlo(t *testing.T) {
 }
 
 // TestSingleTraverseAnglesUndetermined: the rule that sends a single-traverse fit to
-// the fallback (angles held perpendicular and level, as for a two-axis log): rank loss or
-// a sigma beyond 15 deg on a line whose current is significant. (A three-axis traverse
-// that determines the current also determines the angles to a fraction of that, so the
-// rule is exercised on results directly.)
+// the fallback (angles held perpendicular and level, as for a two-axis log): rank loss,
+// a sigma beyond 15 deg or an azimuth at the bound of its search on a line whose
+// current is significant; and, for the final fit (singleAnglesAtEdge), angles fitted
+// to such a line at the edge of the search region. (A three-axis traverse that
+// determines the current also determines the angles to a fraction of that, so the rule
+// is exercised on results directly.)
 func TestSingleTraverseAnglesUndetermined(t *testing.T) {
 	line := func(cur, curSig, azSig, dipSig float64, notes ...string) SourceEstimate {
 		return SourceEstimate{Kind: "line", Current: cur, CurrentSigma: curSig,
@@ -161,6 +163,7 @@ func TestSingleTraverseAnglesUndetermined(t *testing.T) {
 		{"dip sigma 16 deg", []SourceEstimate{line(10, 2, 1, 16)}, true},
 		{"sigma not a number", []SourceEstimate{line(10, 2, math.NaN(), 1)}, true},
 		{"rank loss", []SourceEstimate{line(10, 0.1, 0, 0.05, "azimuth not resolved by the data")}, true},
+		{"azimuth at its bound", []SourceEstimate{line(10, 0.1, 0.2, 0.05, azimuthAtBoundNote())}, true},
 		{"weak line judged by the others", []SourceEstimate{line(10, 0.1, 0.1, 0.1), line(0.1, 0.2, 40, 40)}, false},
 		{"second line undetermined", []SourceEstimate{line(10, 0.1, 0.1, 0.1), line(-9, 0.2, 40, 1)}, true},
 		{"dipoles ignored", []SourceEstimate{line(10, 0.1, 0.1, 0.1), {Kind: "dipole"}}, false},
@@ -170,6 +173,24 @@ func TestSingleTraverseAnglesUndetermined(t *testing.T) {
 			got, why := singleAnglesUndetermined(&Result{Sources: c.sources})
 			if got != c.want || (got && why == "") {
 				t.Errorf("undetermined = %v (%q), want %v", got, why, c.want)
+			}
+		})
+	}
+	edge := []struct {
+		name    string
+		sources []SourceEstimate
+		want    bool
+	}{
+		{"angles fitted at the edge", []SourceEstimate{line(10, 0.1, 0.2, 0.05, EdgeOfSearchNote)}, true},
+		{"angles held at the edge", []SourceEstimate{line(10, 0.1, 0, 0, EdgeOfSearchNote)}, false},
+		{"weak line at the edge", []SourceEstimate{line(0.1, 0.1, 0.2, 0.05, EdgeOfSearchNote)}, false},
+		{"clear of the edge", []SourceEstimate{line(10, 0.1, 0.2, 0.05)}, false},
+	}
+	for _, c := range edge {
+		t.Run(c.name, func(t *testing.T) {
+			got, why := singleAnglesAtEdge(&Result{Sources: c.sources}, 2)
+			if got != c.want || (got && why == "") {
+				t.Errorf("at edge = %v (%q), want %v", got, why, c.want)
 			}
 		})
 	}

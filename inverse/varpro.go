@@ -23,6 +23,10 @@ type lineGeom struct {
 	// azLo, azHi bound a fitted azimuth when azHi > azLo (a single traverse: within
 	// singleAzimuthRange of its perpendicular); otherwise it is free.
 	azLo, azHi float64
+	// azPressed says that the bound held the fitted azimuth back: the fit repeated
+	// with a wider bound turned the line beyond it and fitted the readings better
+	// (see fitter.pressedByBound).
+	azPressed bool
 }
 
 // azBounds returns the bounds of a fitted azimuth.
@@ -33,9 +37,10 @@ func (g *lineGeom) azBounds() (lo, hi float64) {
 	return math.Inf(-1), math.Inf(1)
 }
 
-// atAzBound reports whether a fitted azimuth sits at its bound.
+// atAzBound reports whether a fitted azimuth sits at its bound, or was held back by it
+// (azPressed).
 func (g *lineGeom) atAzBound() bool {
-	return !g.holdAz && g.azHi > g.azLo && (g.az <= g.azLo+1e-9 || g.az >= g.azHi-1e-9)
+	return !g.holdAz && g.azHi > g.azLo && (g.azPressed || g.az <= g.azLo+1e-9 || g.az >= g.azHi-1e-9)
 }
 
 func dirOf(az, dip float64) [3]float64 {

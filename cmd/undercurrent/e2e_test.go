@@ -641,9 +641,13 @@ func TestDemo(t *testing.T) {
 			}
 		case "weak-source":
 			// The scenario has no third conductor; a weak, steep source
-			// the fit adds where the cable rises (chainage 52-58 m) is
-			// reported as a caution at most, near the rise.
-			if f.From < 50 || f.From > 75 || f.Severity == "warning" {
+			// the fit adds where the cable rises (chainage 52-58 m) or
+			// dives again (72-78 m) is reported as a caution at most,
+			// near the change of depth. (Since a single traverse's
+			// azimuth is searched 80 degrees either side of square, T17,
+			// 2 m past the lower kink, fits one there: 0.85 A dipping 72
+			// degrees, its RMS misfit down from 7.0 to 1.1 nT.)
+			if f.From < 50 || f.From > 82 || f.Severity == "warning" {
 				t.Errorf("weak source away from the cable's rise, or a warning: %s", f.Message)
 			}
 		case "shallow-cover":

@@ -7,32 +7,44 @@ import (
 )
 
 // TestLocateShallowCrossing: a service cable crossing the route 0.35 m
-// below ground (crossing-service.toml) shows in one traverse's fit as a
+// below ground (crossing-service.toml) shows in some traverses' fits as a
 // second line, too few to follow as a conductor of its own. Before, its
 // cover went unchecked and the report said "0 warnings" beside a route
 // whose own cover was fine; now a shallow-cover warning names it, with its
 // cover within four sigma (plus the 2 cm the line fit may miss at a
-// traverse it crosses obliquely) of the truth. With a 0.3 m minimum it is
-// clear and nothing is said.
+// traverse it crosses obliquely) of the truth, and its azimuth within 3
+// degrees (or four sigma) of the true 30. The service runs 60 degrees from
+// square to the traverses; since a single traverse's azimuth is searched
+// 80 degrees either side of square (it was 60), traverses whose line it
+// crosses just past an end (T08) or 8 m past (T05, T09) fit it too, the
+// last two loosely (cover 0.29 ± 0.16 m): those may give a caution where
+// the cover's interval reaches the minimum, but every cover finding is the
+// service's. With a 0.3 m minimum no warning is given.
 func TestLocateShallowCrossing(t *testing.T) {
+	check := func(f docFinding) {
+		t.Helper()
+		if !strings.Contains(f.Message, "further line source") {
+			t.Errorf("a cover finding that is not the crossing's: %s %s", f.Severity, f.Message)
+			return
+		}
+		for _, v := range f.Values {
+			if v.Name == "cover" && !(math.Abs(v.Value-0.35) <= kSigma*v.Sigma+0.02) {
+				t.Errorf("crossing's cover %.4f ± %.4f m, true 0.35 m", v.Value, v.Sigma)
+			}
+			if v.Name == "azimuth" && math.Abs(v.Value-30) > math.Max(3, kSigma*v.Sigma) {
+				t.Errorf("crossing's azimuth %.1f ± %.1f degrees, true 30", v.Value, v.Sigma)
+			}
+		}
+	}
 	_, doc := locateJSON(t, "crossing-service.toml", "--group-by", "group", "--sensor-height", "0.3", "--min-cover", "0.6")
 	var found int
 	for _, f := range doc.Findings {
 		if f.Kind != "shallow-cover" {
 			continue
 		}
-		if !strings.Contains(f.Message, "further line source") || f.Severity != "warning" {
-			t.Errorf("a cover finding that is not the crossing's warning: %s %s", f.Severity, f.Message)
-			continue
-		}
-		found++
-		for _, v := range f.Values {
-			if v.Name == "cover" && !(math.Abs(v.Value-0.35) <= kSigma*v.Sigma+0.02) {
-				t.Errorf("crossing's cover %.4f ± %.4f m, true 0.35 m", v.Value, v.Sigma)
-			}
-			if v.Name == "azimuth" && math.Abs(v.Value-30) > 3 {
-				t.Errorf("crossing's azimuth %.1f degrees, true 30", v.Value)
-			}
+		check(f)
+		if f.Severity == "warning" {
+			found++
 		}
 	}
 	if found == 0 {
@@ -40,9 +52,13 @@ func TestLocateShallowCrossing(t *testing.T) {
 	}
 	_, doc = locateJSON(t, "crossing-service.toml", "--group-by", "group", "--sensor-height", "0.3", "--min-cover", "0.3")
 	for _, f := range doc.Findings {
-		if f.Kind == "shallow-cover" {
-			t.Errorf("a cover finding with a 0.3 m minimum: %s", f.Message)
+		if f.Kind != "shallow-cover" {
+			continue
 		}
+		if f.Severity == "warning" {
+			t.Errorf("a cover warning with a 0.3 m minimum: %s", f.Message)
+		}
+		check(f)
 	}
 }
 
