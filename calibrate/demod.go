@@ -491,7 +491,10 @@ func DemodulateColumns(c *Columns, set *DemodSettings) (*DemodResult, error) {
 	}
 	p += perNuisance * len(ds.Nuisance)
 	if N <= p+1 {
-		return nil, fmt.Errorf("calibrate: demodulate: a %g s window holds %d samples at %g Hz sampling, too few for %d parameters", ds.Window, N, fs, p)
+		// Name the shortest window that holds enough samples: the fit
+		// needs at least p+2 (found in review: "9 samples, too few for 8
+		// parameters" read as a contradiction and named no way out).
+		return nil, fmt.Errorf("calibrate: demodulate: a %g s window holds %d samples at %g Hz sampling, too few for the %d parameters each window fits (the signal with its change across the window, a constant and linear term, and any harmonics and mains lines fitted beside it) with residuals left to judge them: use a window of at least %.3g s", ds.Window, N, fs, p, float64(p+2)/fs)
 	}
 	// The interval measured from absolute Unix times is off by parts per
 	// million (their float64 rounding), so a window of just MinCycles

@@ -231,7 +231,7 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 			if bs.Noise > 0 && f.Problem != nil && f.Problem.Sigma > 0 {
 				ref = f.Problem.Sigma
 			}
-			g, st := buildGroup(&f, ac, ref, bs.ProfileMax, pairRoute)
+			g, st := buildGroup(&f, ac, ref, bs.ProfileMax, pairRoute, bs.SensorHeight)
 			d.Groups = append(d.Groups, g)
 			stations = append(stations, st)
 		}
@@ -609,7 +609,7 @@ func circuitPartner(f *Fit, ac, pairRoute bool) int {
 // buildGroup converts one fit into the document's group and the route's
 // station (the strongest source is the one the route follows; with
 // pairRoute, the go-and-return pair it belongs to, see circuitOf).
-func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute bool) (Group, route.Station) {
+func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute bool, sensorHeight float64) (Group, route.Station) {
 	pts := f.Problem.Points
 	g := Group{Key: f.Key, Points: len(pts), Centroid: centroid(pts), Sources: []Source{}}
 	st := route.Station{Key: f.Key, Point: g.Centroid, AC: ac, Dipole: f.Dipole}
@@ -669,7 +669,7 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute boo
 	var above string
 	var aboveFail bool
 	if len(res.Sources) > 0 && g.OK && !weak && near == "" {
-		above, aboveFail = aboveGroundProblem(res, &res.Sources[0])
+		above, aboveFail = aboveGroundProblem(res, &res.Sources[0], sensorHeight)
 	}
 	// A single traverse whose line angles the readings do not determine,
 	// where holding them perpendicular and level misses the readings by

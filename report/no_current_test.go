@@ -32,12 +32,12 @@ func noCurrentFixture(notes []string, ss ...inverse.SourceEstimate) *Fit {
 func TestNoCurrentAsksEveryLine(t *testing.T) {
 	phantom := inverse.SourceEstimate{Current: -54, CurrentSigma: 62, Depth: 33, DepthSigma: 0}
 	cable := inverse.SourceEstimate{Current: 19.992, CurrentSigma: 0.050, Depth: 1.3026, DepthSigma: 0.002}
-	g, st := buildGroup(noCurrentFixture(nil, phantom, cable), false, 0, 0, false)
+	g, st := buildGroup(noCurrentFixture(nil, phantom, cable), false, 0, 0, false, 0)
 	if !g.OK || strings.HasPrefix(g.Problem, "no current found") || !st.OK {
 		t.Errorf("phantom listed before a clean cable: OK %v, station OK %v, problem %q; want a current found", g.OK, st.OK, g.Problem)
 	}
 	weak := inverse.SourceEstimate{Current: 2.1, CurrentSigma: 0.8, Depth: 1.5, DepthSigma: 0.4}
-	g, _ = buildGroup(noCurrentFixture(nil, phantom, weak), false, 0, 0, false)
+	g, _ = buildGroup(noCurrentFixture(nil, phantom, weak), false, 0, 0, false, 0)
 	if g.OK || !strings.HasPrefix(g.Problem, "no current found") {
 		t.Errorf("no line's current beyond 3 sigma (2.1 ± 0.8 A and -54 ± 62 A): OK %v, problem %q; want no current found", g.OK, g.Problem)
 	}
@@ -51,11 +51,11 @@ func TestNoCurrentAsksEveryLine(t *testing.T) {
 func TestHeldAnglesRejectedFails(t *testing.T) {
 	cable := inverse.SourceEstimate{Current: 24.6, CurrentSigma: 2.2, Depth: 1.35, DepthSigma: 0.14}
 	note := inverse.HeldAnglesRejectedNote + ": holding them raises chi-square by 548"
-	g, st := buildGroup(noCurrentFixture([]string{note}, cable), false, 0, 0, false)
+	g, st := buildGroup(noCurrentFixture([]string{note}, cable), false, 0, 0, false, 0)
 	if g.OK || st.OK || !strings.Contains(g.Problem, inverse.HeldAnglesRejectedNote) {
 		t.Errorf("held angles rejected: OK %v, station OK %v, problem %q; want a failed fit saying why", g.OK, st.OK, g.Problem)
 	}
-	g, _ = buildGroup(noCurrentFixture(nil, cable), false, 0, 0, false)
+	g, _ = buildGroup(noCurrentFixture(nil, cable), false, 0, 0, false, 0)
 	if !g.OK || g.Problem != "" {
 		t.Errorf("the same fit without the note: OK %v, problem %q; want sound", g.OK, g.Problem)
 	}
@@ -63,7 +63,7 @@ func TestHeldAnglesRejectedFails(t *testing.T) {
 	// rejected: the fit is used, with care (its linearised sigmas are
 	// approximate).
 	note = inverse.AnglesApproximateNote + " (line 1: azimuth sigma 25.4 deg)"
-	g, st = buildGroup(noCurrentFixture([]string{note}, cable), false, 0, 0, false)
+	g, st = buildGroup(noCurrentFixture([]string{note}, cable), false, 0, 0, false, 0)
 	if !g.OK || !st.OK || g.Problem != note {
 		t.Errorf("angles approximate: OK %v, station OK %v, problem %q; want used with the note as its problem", g.OK, st.OK, g.Problem)
 	}

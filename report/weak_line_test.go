@@ -79,7 +79,7 @@ func TestWeakLineNotCalledAbsent(t *testing.T) {
 	sound, held, strong := 0, 0, 0
 	for i := range 30 {
 		f := brackenFit(t, rng, fmt.Sprintf("T%02d", i+1), 0, 10, field)
-		g, _ := buildGroup(f, false, 0, 0, false)
+		g, _ := buildGroup(f, false, 0, 0, false, 0)
 		_, limit, ok := lineEvidence(f, f.Result, false)
 		if !ok {
 			t.Fatalf("%s: no evidence formed", f.Key)
@@ -117,7 +117,7 @@ func TestNoiseOnlyNotSound(t *testing.T) {
 	var sound []string
 	for i := range 300 {
 		f := brackenFit(t, rng, fmt.Sprintf("N%03d", i+1), 0, 10, none)
-		g, _ := buildGroup(f, false, 0, 0, false)
+		g, _ := buildGroup(f, false, 0, 0, false, 0)
 		if g.OK && g.Problem == "" {
 			s := f.Result.Sources[0]
 			sound = append(sound, fmt.Sprintf("%s: %.3g ± %.2g A at %.3g m", f.Key, s.Current, s.CurrentSigma, s.Depth))
@@ -146,7 +146,7 @@ func TestWeakLineSoundFitsOnTheLine(t *testing.T) {
 	sound, off := 0, 0
 	for i := range 210 {
 		f := brackenFit(t, rng, fmt.Sprintf("T%03d", i+1), 0, 7, field)
-		g, _ := buildGroup(f, false, 0, 0, false)
+		g, _ := buildGroup(f, false, 0, 0, false, 0)
 		if !g.OK || g.Problem != "" {
 			continue
 		}
@@ -168,19 +168,25 @@ func TestWeakLineSoundFitsOnTheLine(t *testing.T) {
 // TestLineAboveGroundMarked: with the ground given (--reference-z), a line above it
 // is no buried conductor: over 3 sigma above, the fit fails; within 3 sigma (a cable
 // on the surface, or the ground given too low), it is used with the problem said.
-// Depths below the sensors (no ground given) are not judged so. (Fixtures of the
+// Depths below the sensors are judged against the ground when the sensors' height
+// above it is given (--sensor-height), and not at all without it. (Fixtures of the
 // invented Harrow Fen substation, noCurrentFixture.)
 func TestLineAboveGroundMarked(t *testing.T) {
 	cases := []struct {
 		name        string
 		depth, sig  float64
 		ref         string
+		height      float64 // --sensor-height, with depths below the sensors
 		ok, problem bool
 	}{
-		{"0.5 m above the ground", -0.5, 0.05, "ReferenceZ", false, true},
-		{"just above, within its sigma", -0.05, 0.1, "ReferenceZ", true, true},
-		{"below the ground", 0.8, 0.05, "ReferenceZ", true, false},
-		{"no ground given", -0.5, 0.05, "", true, false},
+		{"0.5 m above the ground", -0.5, 0.05, "ReferenceZ", 0, false, true},
+		{"just above, within its sigma", -0.05, 0.1, "ReferenceZ", 0, true, true},
+		{"below the ground", 0.8, 0.05, "ReferenceZ", 0, true, false},
+		{"no ground given", -0.5, 0.05, "", 0, true, false},
+		// Depths below sensors 0.3 m above the ground: 0.1 m below them is
+		// 0.2 m above the ground.
+		{"sensor height: 0.2 m above the ground", 0.1, 0.02, "", 0.3, false, true},
+		{"sensor height: below the ground", 0.8, 0.05, "", 0.3, true, false},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
@@ -188,7 +194,7 @@ func TestLineAboveGroundMarked(t *testing.T) {
 				Point: [3]float64{0, 2, -c.depth}}
 			f := noCurrentFixture(nil, cable)
 			f.Result.DepthReference = c.ref
-			g, st := buildGroup(f, false, 0, 0, false)
+			g, st := buildGroup(f, false, 0, 0, false, c.height)
 			above := strings.Contains(g.Problem, "above the ground")
 			if g.OK != c.ok || st.OK != c.ok || above != c.problem {
 				t.Errorf("depth %g ± %g m: OK %v (station %v), problem %q; want OK %v, problem about the ground %v", c.depth, c.sig, g.OK, st.OK, g.Problem, c.ok, c.problem)

@@ -150,18 +150,30 @@ func nearSensorProblem(f *Fit, res *inverse.Result, ac bool) string {
 		h, spacing, len(p.Points), PlusMinus(s.Current, s.CurrentSigma), k)
 }
 
-// aboveGroundProblem returns why the strongest line s of a fit whose depths are
-// below the ground (inverse Settings.ReferenceZ, --reference-z) is not a buried
-// conductor, with fail true when it lies above the ground by more than 3 sigma, or
-// "" when it lies at or below the ground.
-func aboveGroundProblem(res *inverse.Result, s *inverse.SourceEstimate) (why string, fail bool) {
-	if res.DepthReference != "ReferenceZ" || s.Kind == KindDipole || !(s.Depth < 0) {
+// aboveGroundProblem returns why the strongest line s of a fit is not a buried
+// conductor when it lies above the ground: with depths below the ground
+// (inverse Settings.ReferenceZ, --reference-z), above depth 0; with depths below
+// the sensors and their height above the ground known (sensorHeight,
+// --sensor-height), less deep than that height. fail is true when it lies above
+// the ground by more than 3 sigma. It returns "" when the line lies at or below
+// the ground, or where the ground is not known.
+func aboveGroundProblem(res *inverse.Result, s *inverse.SourceEstimate, sensorHeight float64) (why string, fail bool) {
+	ground := 0.0
+	switch {
+	case res.DepthReference == "ReferenceZ":
+	case sensorHeight > 0:
+		ground = sensorHeight
+	default:
 		return "", false
 	}
-	if s.Depth+3*s.DepthSigma < 0 {
-		return fmt.Sprintf("the line lies above the ground given (depth %s m below it, over 3 sigma above): no buried conductor lies there, and the fit stands for something else (noise beside a sensor, or the field of something above the ground)", PlusMinus(s.Depth, s.DepthSigma)), true
+	d := s.Depth - ground
+	if s.Kind == KindDipole || !(d < 0) {
+		return "", false
 	}
-	return fmt.Sprintf("the line lies above the ground given, within 3 sigma of it (depth %s m below it): a conductor on the surface, or the ground level given is too low", PlusMinus(s.Depth, s.DepthSigma)), false
+	if d+3*s.DepthSigma < 0 {
+		return fmt.Sprintf("the line lies above the ground given (depth %s m below it, over 3 sigma above): no buried conductor lies there, and the fit stands for something else (noise beside a sensor, or the field of something above the ground)", PlusMinus(d, s.DepthSigma)), true
+	}
+	return fmt.Sprintf("the line lies above the ground given, within 3 sigma of it (depth %s m below it): a conductor on the surface, or the ground level given is too low", PlusMinus(d, s.DepthSigma)), false
 }
 
 // undetectedProblem returns why a group whose only source is a line with a current

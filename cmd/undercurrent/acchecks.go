@@ -103,21 +103,19 @@ type freqEstimate struct {
 }
 
 // freqMean is the inverse-variance mean of the per-window frequencies fs
-// with weights ws (1/sigma²), from windows of window seconds, seg naming
-// the stretch of windows walked one way (a traverse) each belongs to.
+// with weights ws (1/sigma²), seg naming the stretch of windows walked one
+// way (a traverse) each belongs to.
 //
 // A window whose fit wandered to another tone would pull the mean, so a
-// window is dropped first when its frequency lies beyond both 10 of its
-// own sigmas and a quarter of 1/window from the median (the windows' fits
-// do not follow a tone further off, see demodulateAC). The cut is no
-// tighter because of the walk: where conductors of different phase
-// overlap, the phase of the field changes along a traverse, and a walking
-// sensor's windows seem to run off the frequency by hundredths to tenths
-// of a hertz, hundreds of their own sigmas, with the sign of the walking
-// direction; the mean of the two ways cancels that only when both keep
-// the same windows. A cut at 10 sigmas kept 9 of 160 windows of a
-// three-phase circuit at 50.05 Hz, a biased few, and put the estimate
-// 0.004 Hz off, 2 of its sigmas (found in review).
+// window is dropped first when its frequency lies beyond 10 of its own
+// sigmas from the median. Where conductors of different phase overlap,
+// the phase of the field changes along a traverse, and a walking sensor's
+// windows seem to run off the frequency by hundredths to tenths of a
+// hertz, hundreds of their own sigmas, with the sign of the walking
+// direction, so that the cut may keep a biased few (9 of 160 windows of a
+// three-phase circuit at 50.05 Hz, 0.004 Hz off); the groups demodulated
+// at such an estimate then search for a phase ramp with one line fewer as
+// well (fitRamp), which takes up the rest.
 //
 // The sigma is the noise's, sum(ws)^(-1/2), widened by the square root of
 // a reduced chi-square: that of the stretches' own means about the mean
@@ -126,16 +124,24 @@ type freqEstimate struct {
 // wandering or the traverses differing), else that of the windows (the
 // walk's share then counts in full). ok is false with fewer than
 // freqCheckMinWindows windows.
-func freqMean(fs, ws []float64, seg []int, window float64) (mean, sigma float64, n int, ok bool) {
+func freqMean(fs, ws []float64, seg []int) (mean, sigma float64, n int, ok bool) {
 	if len(fs) < freqCheckMinWindows {
 		return 0, 0, 0, false
 	}
 	sorted := append([]float64(nil), fs...)
 	sort.Float64s(sorted)
 	med := sorted[len(sorted)/2]
+	// A window is kept within 10 of its own sigmas of the median. Keeping
+	// also those within a quarter of 1/window of it (so that the walk's
+	// turn of the phase over conductors of different phase, which moves
+	// windows by tenths of a hertz one way and the other, averaged out)
+	// let the walk's share that the two ways do not cancel through: a
+	// false "frequency off" by 0.0018 Hz, six of its sigmas, on a
+	// ten-minute walk over two cables 115 degrees apart at exactly 50 Hz
+	// (found in review). The ramps fitted after demodulating at an
+	// estimate take up what the cut leaves (fitRamp).
 	keep := func(i int) bool {
-		d := math.Abs(fs[i] - med)
-		return d*math.Sqrt(ws[i]) <= 10 || !(window > 0) || d <= 0.25/window
+		return math.Abs(fs[i]-med)*math.Sqrt(ws[i]) <= 10
 	}
 	var sw, swf float64
 	segW, segWF := map[int]float64{}, map[int]float64{}
@@ -152,22 +158,27 @@ func freqMean(fs, ws []float64, seg []int, window float64) (mean, sigma float64,
 		return 0, 0, 0, false
 	}
 	mean = swf / sw
+	// The windows' reduced chi-square about the mean, and, with two or
+	// more stretches, the stretches' means': the larger widens the sigma.
+	// (The stretches' alone, where the cut keeps a biased few windows in
+	// few stretches, put a three-phase estimate at 50.0531 ± 0.0002 Hz
+	// for 50.05.)
 	var c2 float64
-	dof := n - 1
-	if len(segW) >= 2 {
-		for k, w := range segW {
-			m := segWF[k] / w
-			c2 += (m - mean) * (m - mean) * w
-		}
-		dof = len(segW) - 1
-	} else {
-		for i, f := range fs {
-			if keep(i) {
-				c2 += (f - mean) * (f - mean) * ws[i]
-			}
+	for i, f := range fs {
+		if keep(i) {
+			c2 += (f - mean) * (f - mean) * ws[i]
 		}
 	}
-	return mean, math.Sqrt(math.Max(1, c2/float64(dof)) / sw), n, true
+	red := c2 / float64(n-1)
+	if len(segW) >= 2 {
+		var cs float64
+		for k, w := range segW {
+			m := segWF[k] / w
+			cs += (m - mean) * (m - mean) * w
+		}
+		red = math.Max(red, cs/float64(len(segW)-1))
+	}
+	return mean, math.Sqrt(math.Max(1, red) / sw), n, true
 }
 
 // estimateWindowFreq combines the per-window frequencies of a
@@ -222,16 +233,16 @@ func estimateWindowFreq(ws []calibrate.Window, window float64) (est freqEstimate
 		allW = append(allW, wgt)
 		allS = append(allS, stretch)
 	}
-	f1, s1, n1, ok1 := freqMean(fs[1], wt[1], sg[1], window)
-	f2, s2, n2, ok2 := freqMean(fs[2], wt[2], sg[2], window)
+	f1, s1, n1, ok1 := freqMean(fs[1], wt[1], sg[1])
+	f2, s2, n2, ok2 := freqMean(fs[2], wt[2], sg[2])
 	if ok1 && ok2 {
 		return freqEstimate{freq: (f1 + f2) / 2, sigma: math.Hypot(s1, s2) / 2, windows: n1 + n2, trusted: true}, true
 	}
 	if len(fs[1])+len(fs[2]) == 0 {
-		f, sgm, n, ok := freqMean(fs[0], wt[0], sg[0], window)
+		f, sgm, n, ok := freqMean(fs[0], wt[0], sg[0])
 		return freqEstimate{freq: f, sigma: sgm, windows: n, trusted: true}, ok
 	}
-	f, sgm, n, ok := freqMean(all, allW, allS, window)
+	f, sgm, n, ok := freqMean(all, allW, allS)
 	return freqEstimate{freq: f, sigma: sgm, windows: n}, ok
 }
 
@@ -265,7 +276,7 @@ func uncheckedWarning(ws []calibrate.Window, freq float64) string {
 	if clear < freqCheckMinWindows {
 		return fmt.Sprintf("the AC frequency could not be checked: fewer than %d windows have a clear signal (the field %d times its noise on some axis), for example with a stronger field at another frequency nearby; the results assume the field runs at exactly %g Hz", freqCheckMinWindows, freqCheckSNR, freq)
 	}
-	return fmt.Sprintf("the AC frequency could not be checked: %d of %d windows have a clear signal, but their fitted frequencies disagree, and fewer than %d lie near the median (within 10 of their own sigmas, or a quarter of the window's frequency resolution, 1/window), as where the windows' fits land on different tones or the frequency hops; the results assume the field runs at exactly %g Hz", clear, len(ws), freqCheckMinWindows, freq)
+	return fmt.Sprintf("the AC frequency could not be checked: %d of %d windows have a clear signal, but their fitted frequencies disagree far beyond their own sigmas, and fewer than %d lie within 10 of their sigmas of the median (as where conductors of different phase overlap and the phase turns as the sensor walks, or where the frequency hops); the results assume the field runs at exactly %g Hz", clear, len(ws), freqCheckMinWindows, freq)
 }
 
 // stillTravel is the horizontal half-travel, m, below which a window is

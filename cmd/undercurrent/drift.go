@@ -139,7 +139,7 @@ func driftWarning(o *locateOptions, sv *survey) string {
 	}
 	// The fits with the drift taken out.
 	set := o.fitSettings()
-	var gain float64
+	var gain, shift float64
 	for _, d := range gs {
 		p := d.g.problem(false, sv.groupNoise(d.g, o.noise))
 		q := *p
@@ -156,11 +156,43 @@ func driftWarning(o *locateOptions, sv *survey) string {
 		rss0 := d.g.res.RMS * d.g.res.RMS * float64(3*len(p.Fields))
 		rss1 := r.RMS * r.RMS * float64(3*len(p.Fields))
 		gain += (rss0 - rss1) / (d.g.res.Sigma * d.g.res.Sigma)
+		shift = math.Max(shift, driftShift(d.g.res, r))
 	}
-	if !(gain > driftGain) {
+	// Warned of only when taking the drift out moves the strongest line's
+	// current, depth or offset by more than driftShiftK of its sigmas:
+	// logged at 500 Hz, a quiet day's 20 nT an hour was significant
+	// (chi-square lower by far more than driftGain over 10,000 readings a
+	// traverse) while the currents and depths stood within their sigmas
+	// of the truth (found in review).
+	if !(gain > driftGain) || !(shift > driftShiftK) {
 		return ""
 	}
 	perMin := func(v float64) float64 { return 60 * v }
-	return fmt.Sprintf("no base station log was given (--base), and the Earth's field drifted while the traverses were walked: the groups' backgrounds change steadily through the survey, by %.3g nT a minute (east %+.3g, north %+.3g, up %+.3g), %.3g nT over a traverse's %.3g s, %.3g times what a traverse's readings resolve, and with that drift taken out of the readings the fits miss them by less (chi-square lower by %.3g over %d groups); the fits take the drift along each traverse for part of the conductor's field (the error changing sign with the walking direction), so positions, depths and currents are off by more than their sigmas say; log a base station and give it with --base",
-		perMin(speed), perMin(rate[0]), perMin(rate[1]), perMin(rate[2]), speed*T, T, speed*T/resolved, gain, n)
+	return fmt.Sprintf("no base station log was given (--base), and the Earth's field drifted while the traverses were walked: the groups' backgrounds change steadily through the survey, by %.3g nT a minute (east %+.3g, north %+.3g, up %+.3g), %.3g nT over a traverse's %.3g s, %.3g times what a traverse's readings resolve, and with that drift taken out of the readings the fits miss them by less (chi-square lower by %.3g over %d groups); the fits take the drift along each traverse for part of the conductor's field (the error changing sign with the walking direction), and taking it out moves a conductor's current, depth or offset by up to %.2g of its sigmas, so the results are off by more than their sigmas say; log a base station and give it with --base",
+		perMin(speed), perMin(rate[0]), perMin(rate[1]), perMin(rate[2]), speed*T, T, speed*T/resolved, gain, n, shift)
+}
+
+// driftShiftK is the least move, in sigmas, of a strongest line's current,
+// depth or offset when the drift is taken out for the drift to be warned of.
+const driftShiftK = 1
+
+// driftShift is the largest move, in the first fit's sigmas, of the
+// strongest line's current (its size), depth and offset from fit a to fit
+// b of the same readings; 0 when either has no line or a sigma is missing.
+func driftShift(a, b *inverse.Result) float64 {
+	if a == nil || b == nil || len(a.Sources) == 0 || len(b.Sources) == 0 {
+		return 0
+	}
+	s, t := a.Sources[0], b.Sources[0]
+	var z float64
+	for _, q := range [][3]float64{
+		{math.Abs(s.Current), math.Abs(t.Current), s.CurrentSigma},
+		{s.Depth, t.Depth, s.DepthSigma},
+		{s.Offset, t.Offset, s.OffsetSigma},
+	} {
+		if q[2] > 0 {
+			z = math.Max(z, math.Abs(q[1]-q[0])/q[2])
+		}
+	}
+	return z
 }
