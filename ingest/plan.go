@@ -497,7 +497,9 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 // name states but this package does not read ("bx [furlong]", "Bx_MT",
 // "bx_nT_x10", "time (local)"): such a column is not taken by its name, and
 // "no column for bx" beside a list of columns showing it said nothing of
-// why. It returns nil when no column not taken (taken: by index) is one.
+// why. The rest of the name may be no unit at all ("bx_filtered", "Bx_1"),
+// which a mapping alone reads in nT, so the advice gives the mapping first
+// and the unit only where the name states one. It returns nil when no column not taken (taken: by index) is one.
 func (p *plan) unreadUnitColumn(missing []string, taken map[int]bool, headerLine int) error {
 	for _, m := range missing {
 		c, _ := canonIndex(m)
@@ -533,8 +535,8 @@ func (p *plan) unreadUnitColumn(missing []string, taken map[int]bool, headerLine
 				}
 				mapping := m + "=" + name
 				return &Error{File: p.file, Line: headerLine, Batch: -1,
-					Msg: fmt.Sprintf("no column for %s: column %q is %s by its name, but the rest of its name is not read as a unit: %v; to read it, map it and give its unit (a column mapping %s and a unit option %s=U; on the command line --column %s --unit %s=U)",
-						strings.Join(missing, ", "), name, m, err, mapping, m, shellQuote(mapping), m)}
+					Msg: fmt.Sprintf("no column for %s: column %q may be %s (its name begins so), but the rest of its name is not read as a unit: %v; if it is %s, map it (a column mapping %s; on the command line --column %s), and if the rest of its name states a unit, give that too (a unit option %s=U; --unit %s=U)",
+						strings.Join(missing, ", "), name, m, err, m, mapping, shellQuote(mapping), m, m)}
 			}
 		}
 	}
