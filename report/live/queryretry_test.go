@@ -106,20 +106,8 @@ func TestQueryFailureLogged(t *testing.T) {
 		t.Skip("runs a broker and the service")
 	}
 	h := newHarness(t)
-	nc, err := broker.Connect(h.srv.ClientURL(), "w1", broker.Auth{})
-	if err != nil {
-		t.Fatal(err)
-	}
-	t.Cleanup(nc.Close)
 	var logs syncBuffer
-	svc, err := New(Config{Site: testSite(t, testSiteText), Conn: nc, Worker: "w1", NewEstimator: newMean, Logger: slog.New(slog.NewTextHandler(&logs, nil))})
-	if err != nil {
-		t.Fatal(err)
-	}
-	ctx, cancel := context.WithCancel(context.Background())
-	defer cancel()
-	go svc.Run(ctx)
-	<-svc.Ready()
+	svc, _ := h.runConfig(t, Config{Site: testSite(t, testSiteText), Worker: "w1", NewEstimator: newMean, Logger: slog.New(slog.NewTextHandler(&logs, nil))}, "w1")
 	h.publish(0, 3)
 	waitFor(t, 30*time.Second, "6 estimates", func() bool { return len(h.estimates()) >= 6 })
 	var ev queryEvents
