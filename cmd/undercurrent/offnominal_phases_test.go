@@ -3,8 +3,6 @@ package main
 import (
 	"fmt"
 	"math"
-	"os"
-	"path/filepath"
 	"regexp"
 	"strconv"
 	"strings"
@@ -51,17 +49,7 @@ frequency_hz = %g
 phase_deg = %g
 `, name, y, cur, freq, ph)
 	}
-	path := filepath.Join(dir, "scenario.toml")
-	if err := os.WriteFile(path, []byte(text), 0o644); err != nil {
-		t.Fatal(err)
-	}
-	sc, err := simulate.Load(path)
-	if err != nil {
-		t.Fatal(err)
-	}
-	log := filepath.Join(dir, "log.arrows")
-	mustCLI(t, "simulate", path, "-o", log)
-	return sc, log
+	return simulateScenario(t, dir, "scenario", text)
 }
 
 // corrowMarshWalk returns the head of a scenario at Corrow Marsh (an
