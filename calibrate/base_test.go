@@ -163,14 +163,25 @@ func TestBaseCorrectColumnsSynthetic(t *testing.T) {
 // correction warns that its east and north are not geographic; the Boulder
 // files, which give DECBAS, draw no such warning (TestBaseCorrectBoulderSelf).
 func TestBaseCorrectWarnsBaselineFrame(t *testing.T) {
+	warnings := hfnBaseSelfWarnings(t, "variation", "hfn20240301vmin.min")
+	if len(warnings) != 1 || !strings.Contains(warnings[0], "gives no baseline declination (DECBAS)") {
+		t.Errorf("warnings %q, want one about the baseline frame", warnings)
+	}
+}
+
+// hfnBaseSelfWarnings writes a five-minute IAGA-2002 record of station HFN
+// in H E Z with the given Data Type to a file of the given name, corrects it
+// against itself as base and returns the correction's warnings.
+func hfnBaseSelfWarnings(t *testing.T, dataType, name string) []string {
+	t.Helper()
 	text := " Format                 IAGA-2002                                    |\n" +
 		" IAGA CODE              HFN                                          |\n" +
-		" Data Type              variation                                    |\n" +
+		fmt.Sprintf(" Data Type              %-45s|\n", dataType) +
 		"DATE       TIME         DOY     HFNH      HFNE      HFNZ      HFNF   |\n"
 	for i := range 5 {
 		text += fmt.Sprintf("2024-03-01 00:0%d:00.000 061     %.2f    100.00  46000.00  50000.00\n", i, 20000+float64(i))
 	}
-	path := filepath.Join(t.TempDir(), "hfn20240301vmin.min")
+	path := filepath.Join(t.TempDir(), name)
 	if err := os.WriteFile(path, []byte(text), 0o644); err != nil {
 		t.Fatal(err)
 	}
@@ -186,7 +197,5 @@ func TestBaseCorrectWarnsBaselineFrame(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if len(rep.Warnings) != 1 || !strings.Contains(rep.Warnings[0], "gives no baseline declination (DECBAS)") {
-		t.Errorf("warnings %q, want one about the baseline frame", rep.Warnings)
-	}
+	return rep.Warnings
 }

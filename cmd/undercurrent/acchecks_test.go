@@ -82,7 +82,14 @@ func acWalkEdit(t *testing.T, dir, freq, extra string, oneWay bool, edit func(st
 	if edit != nil {
 		text = edit(text)
 	}
-	path := filepath.Join(dir, "walk.toml")
+	return simulateScenario(t, dir, "walk", text)
+}
+
+// simulateScenario writes text to dir/name.toml, loads it as a scenario
+// and simulates it into dir/name.arrows: the scenario and the log.
+func simulateScenario(t *testing.T, dir, name, text string) (*simulate.Scenario, string) {
+	t.Helper()
+	path := filepath.Join(dir, name+".toml")
 	if err := os.WriteFile(path, []byte(text), 0o644); err != nil {
 		t.Fatal(err)
 	}
@@ -90,7 +97,7 @@ func acWalkEdit(t *testing.T, dir, freq, extra string, oneWay bool, edit func(st
 	if err != nil {
 		t.Fatal(err)
 	}
-	log := filepath.Join(dir, "walk.arrows")
+	log := filepath.Join(dir, name+".arrows")
 	mustCLI(t, "simulate", path, "-o", log)
 	return sc, log
 }

@@ -1,10 +1,7 @@
 package main
 
 import (
-	"fmt"
 	"math"
-	"os"
-	"path/filepath"
 	"regexp"
 	"strconv"
 	"strings"
@@ -75,39 +72,15 @@ func TestDCRunNoAlternatingFieldOverDC(t *testing.T) {
 	}
 	for _, seed := range []int{1, 2} {
 		dir := t.TempDir()
-		path := filepath.Join(dir, "pipe.toml")
-		text := fmt.Sprintf(`name = "corrow-marsh-pipe"
-site = "Corrow Marsh, protected main"
-seed = %d
-start = "2026-06-11T08:00:00Z"
-[earth]
-field_nt = [-150.0, 19200.0, -45100.0]
-drift_nt_per_hour = [3.0, 18.0, -8.0]
-[sensor]
-height_m = 0.3
-noise_nt = 1.0
-sample_rate_hz = 2000
-[survey]
-route = [[0.0, 0.0], [30.0, 0.0]]
-count = 4
-spacing_m = 5.0
-first_at_m = 5.0
-length_m = 8.0
-speed_m_s = 1.0
-turn_s = 5.0
-
+		text := corrowMarshWalk("corrow-marsh-pipe", "Corrow Marsh, protected main", seed, 1) + `
 [[conductor]]
 name = "main"
 kind = "line"
 point = [0.0, 1.2, -1.4]
 direction = [1.0, 0.0, 0.0]
 current_a = 30
-`, seed)
-		if err := os.WriteFile(path, []byte(text), 0o644); err != nil {
-			t.Fatal(err)
-		}
-		log := filepath.Join(dir, "pipe.arrows")
-		mustCLI(t, "simulate", path, "-o", log)
+`
+		log := simulateText(t, dir, "pipe", text, ".arrows")
 		errOut := strings.Join(locateDoc(t, "--group-by", "group", log).Warnings, "\n")
 		if strings.Contains(errOut, "alternates") {
 			t.Errorf("seed %d: a DC log drew %q", seed, errOut)

@@ -1,10 +1,6 @@
 package broker
 
-import (
-	"context"
-	"testing"
-	"time"
-)
+import "testing"
 
 // The broker drops a batch whose message id it already holds. With an id
 // of asset/sensor/first time only, a longer batch starting at the same time
@@ -13,13 +9,7 @@ import (
 // without a word. Only a batch identical to a stored one, in either
 // encoding, may be dropped.
 func TestPublishBatchDedupsOnlyIdenticalBatches(t *testing.T) {
-	if testing.Short() {
-		t.Skip("starts a broker")
-	}
-	s := startTestServer(t, ServerConfig{MQTTPort: -1})
-	_, js := connectJS(t, s.ClientURL(), Auth{})
-	ctx, cancel := context.WithTimeout(context.Background(), 30*time.Second)
-	defer cancel()
+	ctx, js := brokerJS(t)
 	if _, err := Setup(ctx, js, StreamSettings{Memory: true}); err != nil {
 		t.Fatal(err)
 	}
@@ -45,14 +35,7 @@ func TestPublishBatchDedupsOnlyIdenticalBatches(t *testing.T) {
 	if !publish(testBatch(25), ContentArrow) {
 		t.Error("the same 25 samples sent again (as Arrow) were stored twice")
 	}
-	st, err := js.Stream(ctx, StreamData)
-	if err != nil {
-		t.Fatal(err)
-	}
-	info, err := st.Info(ctx)
-	if err != nil {
-		t.Fatal(err)
-	}
+	_, info := streamInfo(t, ctx, js, StreamData)
 	if info.State.Msgs != 3 {
 		t.Errorf("data stream holds %d batches, want 3", info.State.Msgs)
 	}

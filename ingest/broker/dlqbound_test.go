@@ -15,13 +15,7 @@ import (
 // at most that many bytes, new ones still taken and the oldest giving way;
 // a payload longer than keep is cut to keep bytes, its size in a header.
 func TestDeadLetterStreamBounded(t *testing.T) {
-	if testing.Short() {
-		t.Skip("starts a broker")
-	}
-	s := startTestServer(t, ServerConfig{MQTTPort: -1})
-	_, js := connectJS(t, s.ClientURL(), Auth{})
-	ctx, cancel := context.WithTimeout(context.Background(), 30*time.Second)
-	defer cancel()
+	ctx, js := brokerJS(t)
 	const limit = 256 << 10
 	stores, err := Setup(ctx, js, StreamSettings{DeadLetterMaxBytes: limit})
 	if err != nil {
@@ -37,14 +31,7 @@ func TestDeadLetterStreamBounded(t *testing.T) {
 			t.Fatalf("dead letter %d refused: %v", i, err)
 		}
 	}
-	st, err := js.Stream(ctx, StreamDeadLetter)
-	if err != nil {
-		t.Fatal(err)
-	}
-	info, err := st.Info(ctx)
-	if err != nil {
-		t.Fatal(err)
-	}
+	st, info := streamInfo(t, ctx, js, StreamDeadLetter)
 	if info.State.Bytes > limit || info.State.LastSeq != n || info.State.FirstSeq <= 1 {
 		t.Errorf("dead letters hold %d bytes, sequences %d to %d; want at most %d bytes ending at %d, the first ones discarded",
 			info.State.Bytes, info.State.FirstSeq, info.State.LastSeq, limit, n)

@@ -1,7 +1,6 @@
 package broker
 
 import (
-	"context"
 	"testing"
 	"time"
 )
@@ -11,13 +10,7 @@ import (
 // PublishBatch tries again instead of failing the batch: the batch is
 // stored once.
 func TestPublishBatchRetriesWhileNoStreamAnswers(t *testing.T) {
-	if testing.Short() {
-		t.Skip("starts a broker")
-	}
-	s := startTestServer(t, ServerConfig{MQTTPort: -1})
-	_, js := connectJS(t, s.ClientURL(), Auth{})
-	ctx, cancel := context.WithTimeout(context.Background(), 30*time.Second)
-	defer cancel()
+	ctx, js := brokerJS(t)
 	tried := make(chan struct{})
 	set := make(chan error, 1)
 	go func() {

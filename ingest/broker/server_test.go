@@ -42,6 +42,36 @@ func connectJS(t *testing.T, url string, auth Auth) (*nats.Conn, jetstream.JetSt
 	return nc, js
 }
 
+// brokerJS skips the test under -short, starts a test broker without
+// MQTT, connects to it and returns a context of 30 s, cancelled when the
+// test ends, with the connection's JetStream.
+func brokerJS(t *testing.T) (context.Context, jetstream.JetStream) {
+	t.Helper()
+	if testing.Short() {
+		t.Skip("starts a broker")
+	}
+	s := startTestServer(t, ServerConfig{MQTTPort: -1})
+	_, js := connectJS(t, s.ClientURL(), Auth{})
+	ctx, cancel := context.WithTimeout(context.Background(), 30*time.Second)
+	t.Cleanup(cancel)
+	return ctx, js
+}
+
+// streamInfo looks up the stream name and reads its info, failing the
+// test on an error.
+func streamInfo(t *testing.T, ctx context.Context, js jetstream.JetStream, name string) (jetstream.Stream, *jetstream.StreamInfo) {
+	t.Helper()
+	st, err := js.Stream(ctx, name)
+	if err != nil {
+		t.Fatal(err)
+	}
+	info, err := st.Info(ctx)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return st, info
+}
+
 // Reliability (issue 6): stop and restart the embedded broker; nothing
 // acknowledged is lost.
 func TestRestartKeepsAcknowledged(t *testing.T) {

@@ -7,19 +7,7 @@ import "testing"
 // with the file, line and column of its header, as a misspelt key inside a
 // known table is. Before, only the file was named.
 func TestScenarioUnknownTableLine(t *testing.T) {
-	good := `
-[sensor]
-sample_rate_hz = 10
-[survey]
-count = 2
-spacing_m = 5
-length_m = 6
-[[conductor]]
-kind = "line"
-point = [0, 0, -1]
-direction = [1, 0, 0]
-current_a = 10
-`
+	good := goodScenario
 	// A dotted key at the top defines a table too (line 2; the column
 	// is its value's, as for other keys).
 	cases0 := []parseCase{{"dotted key", "\n[sensor]", "\nnope.name = \"x\"\n[sensor]", `s.toml:2:13: unknown key "nope.name"`}}

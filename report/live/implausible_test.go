@@ -21,6 +21,19 @@ func scaleWindow(w *window, f float64) {
 	}
 }
 
+// solveScaled divides every reading of w by scale (scaleWindow) and
+// solves it as a processor of asset a with the inverse estimator, its
+// conductors named "go" and "return": the estimate, and the implausible
+// checks among the alarms (implausibleChecks).
+func solveScaled(a *AssetConfig, w *window, scale float64) (*Estimate, map[string]bool) {
+	scaleWindow(w, scale)
+	p, _ := newProcessor(a, "test")
+	est, _ := NewInverseEstimator(a.Mode, a.Conductors)
+	p.est, p.names = est, []string{"go", "return"}
+	e, alarms := p.solve(w, p.reduce(w))
+	return e, implausibleChecks(alarms)
+}
+
 func implausibleChecks(alarms []Alarm) map[string]bool {
 	out := map[string]bool{}
 	for _, al := range alarms {
@@ -55,12 +68,7 @@ func TestImplausibleDCWindowInWrongUnit(t *testing.T) {
 		t.Run(tc.name, func(t *testing.T) {
 			rng := rand.New(rand.NewPCG(7, 2))
 			w := synthWindow(a, []complex128{200, -180}, earth, 1764650000, 200, 200, a.Noise, rng)
-			scaleWindow(w, tc.scale)
-			p, _ := newProcessor(a, "test")
-			est, _ := NewInverseEstimator(a.Mode, a.Conductors)
-			p.est, p.names = est, []string{"go", "return"}
-			e, alarms := p.solve(w, p.reduce(w))
-			got := implausibleChecks(alarms)
+			e, got := solveScaled(a, w, tc.scale)
 			want := "good"
 			if len(tc.checks) > 0 {
 				want = "implausible"
@@ -92,12 +100,7 @@ func TestImplausibleACWindowInWrongUnit(t *testing.T) {
 	for _, scale := range []float64{1, 1000} {
 		rng := rand.New(rand.NewPCG(8, 3))
 		w := synthWindow(a, truth, [3]float64{}, 1764650000, 500, 500, a.Noise, rng)
-		scaleWindow(w, scale)
-		p, _ := newProcessor(a, "test")
-		est, _ := NewInverseEstimator(a.Mode, a.Conductors)
-		p.est, p.names = est, []string{"go", "return"}
-		e, alarms := p.solve(w, p.reduce(w))
-		got := implausibleChecks(alarms)
+		e, got := solveScaled(a, w, scale)
 		switch {
 		case scale == 1 && (e.Quality != "good" || len(got) != 0):
 			t.Errorf("AC window without the static field: quality %q, implausible %v; want good", e.Quality, e.Implausible)
@@ -179,12 +182,7 @@ func TestImplausibleACWithEarthFieldGiven(t *testing.T) {
 	for _, scale := range []float64{1, 1000} {
 		rng := rand.New(rand.NewPCG(9, 4))
 		w := synthWindow(a, truth, earth, 1764650000, 500, 500, a.Noise, rng)
-		scaleWindow(w, scale)
-		p, _ := newProcessor(a, "test")
-		est, _ := NewInverseEstimator(a.Mode, a.Conductors)
-		p.est, p.names = est, []string{"go", "return"}
-		e, alarms := p.solve(w, p.reduce(w))
-		got := implausibleChecks(alarms)
+		e, got := solveScaled(a, w, scale)
 		switch {
 		case scale == 1 && (e.Quality != "good" || len(got) != 0):
 			t.Errorf("AC window with the Earth's field: quality %q, implausible %v; want good", e.Quality, e.Implausible)

@@ -44,21 +44,8 @@ func TestServiceMarksImplausibleWindows(t *testing.T) {
 	}
 	h := newHarness(t)
 	site := testSite(t, strings.Replace(testSiteText, `window = "500ms"`, "window = \"500ms\"\nnoise = 2.0", 1))
-	nc, err := broker.Connect(h.srv.ClientURL(), "w1", broker.Auth{})
-	if err != nil {
-		t.Fatal(err)
-	}
-	t.Cleanup(nc.Close)
 	var logs syncBuffer
-	svc, err := New(Config{Site: site, Conn: nc, Worker: "w1", NewEstimator: newMean, Logger: slog.New(slog.NewTextHandler(&logs, nil))})
-	if err != nil {
-		t.Fatal(err)
-	}
-	ctx, cancel := context.WithCancel(context.Background())
-	t.Cleanup(cancel)
-	done := make(chan error, 1)
-	go func() { done <- svc.Run(ctx) }()
-	<-svc.Ready()
+	svc, stop := h.runConfig(t, Config{Site: site, Worker: "w1", NewEstimator: newMean, Logger: slog.New(slog.NewTextHandler(&logs, nil))}, "w1")
 	h.publish(0, 2)
 	waitFor(t, 30*time.Second, "3 estimates", func() bool { return len(h.estimates()) >= 3 })
 	resp, err := http.Get("http://" + svc.HTTPAddr() + "/metrics")
@@ -67,8 +54,7 @@ func TestServiceMarksImplausibleWindows(t *testing.T) {
 	}
 	body, _ := io.ReadAll(resp.Body)
 	resp.Body.Close()
-	cancel()
-	if err := <-done; err != nil {
+	if err := stop(); err != nil {
 		t.Fatal(err)
 	}
 	ests := h.estimates()

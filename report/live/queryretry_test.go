@@ -42,19 +42,11 @@ func TestQueryRetriesFetchWithoutResponders(t *testing.T) {
 			return
 		}
 		// The query's consumer: take it away, keeping its settings.
-		st, err := h.js.Stream(ctx, broker.StreamEstimates)
-		if err != nil {
-			t.Error(err)
-			return
-		}
-		for name := range st.ConsumerNames(ctx).Name() {
-			if !strings.HasPrefix(name, "uc_query_") {
-				continue
-			}
+		eachQueryConsumer(ctx, t, h, func(st jetstream.Stream, name string) bool {
 			c, err := st.Consumer(ctx, name)
 			if err != nil {
 				t.Error(err)
-				return
+				return false
 			}
 			ci := c.CachedInfo().Config
 			mu.Lock()
@@ -64,7 +56,8 @@ func TestQueryRetriesFetchWithoutResponders(t *testing.T) {
 			if err := st.DeleteConsumer(ctx, name); err != nil {
 				t.Error(err)
 			}
-		}
+			return true
+		})
 	}
 	ev.install(r.svc)
 	hook := func(step string) {
@@ -106,20 +99,8 @@ func TestQueryFailureLogged(t *testing.T) {
 		t.Skip("runs a broker and the service")
 	}
 	h := newHarness(t)
-	nc, err := broker.Connect(h.srv.ClientURL(), "w1", broker.Auth{})
-	if err != nil {
-		t.Fatal(err)
-	}
-	t.Cleanup(nc.Close)
 	var logs syncBuffer
-	svc, err := New(Config{Site: testSite(t, testSiteText), Conn: nc, Worker: "w1", NewEstimator: newMean, Logger: slog.New(slog.NewTextHandler(&logs, nil))})
-	if err != nil {
-		t.Fatal(err)
-	}
-	ctx, cancel := context.WithCancel(context.Background())
-	defer cancel()
-	go svc.Run(ctx)
-	<-svc.Ready()
+	svc, _ := h.runConfig(t, Config{Site: testSite(t, testSiteText), Worker: "w1", NewEstimator: newMean, Logger: slog.New(slog.NewTextHandler(&logs, nil))}, "w1")
 	h.publish(0, 3)
 	waitFor(t, 30*time.Second, "6 estimates", func() bool { return len(h.estimates()) >= 6 })
 	var ev queryEvents
@@ -127,16 +108,10 @@ func TestQueryFailureLogged(t *testing.T) {
 		if event != "fetch" {
 			return
 		}
-		st, err := h.js.Stream(ctx, broker.StreamEstimates)
-		if err != nil {
-			t.Error(err)
-			return
-		}
-		for name := range st.ConsumerNames(ctx).Name() {
-			if strings.HasPrefix(name, "uc_query_") {
-				st.DeleteConsumer(ctx, name) // gone for good: every fetch has no responder
-			}
-		}
+		eachQueryConsumer(ctx, t, h, func(st jetstream.Stream, name string) bool {
+			st.DeleteConsumer(ctx, name) // gone for good: every fetch has no responder
+			return true
+		})
 	}
 	ev.install(svc)
 	var mu sync.Mutex
@@ -165,6 +140,23 @@ func TestQueryFailureLogged(t *testing.T) {
 	for _, want := range []string{"level=WARN", "path=/api/v1/assets/fenwick-lane/history", `query="limit=1000"`, "status=502", "no responders"} {
 		if !strings.Contains(line, want) {
 			t.Errorf("failure log %q lacks %q", line, want)
+		}
+	}
+}
+
+// eachQueryConsumer calls f with the estimates stream and the name of
+// each query consumer on it (uc_query_*) until f returns false; failing
+// to find the stream is reported with t.Error.
+func eachQueryConsumer(ctx context.Context, t testing.TB, h *harness, f func(st jetstream.Stream, name string) bool) {
+	t.Helper()
+	st, err := h.js.Stream(ctx, broker.StreamEstimates)
+	if err != nil {
+		t.Error(err)
+		return
+	}
+	for name := range st.ConsumerNames(ctx).Name() {
+		if strings.HasPrefix(name, "uc_query_") && !f(st, name) {
+			return
 		}
 	}
 }

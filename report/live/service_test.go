@@ -85,12 +85,20 @@ type harness struct {
 // returns what Run returned.
 func (h *harness) runService(t testing.TB, site *Site, user string) (svc *Service, stop func() error) {
 	t.Helper()
+	return h.runConfig(t, Config{Site: site, Worker: "wk"}, user)
+}
+
+// runConfig is runService with the service's Config given (its Conn is
+// the connection made as user).
+func (h *harness) runConfig(t testing.TB, cfg Config, user string) (svc *Service, stop func() error) {
+	t.Helper()
 	nc, err := broker.Connect(h.srv.ClientURL(), user, broker.Auth{})
 	if err != nil {
 		t.Fatal(err)
 	}
 	t.Cleanup(nc.Close)
-	svc, err = New(Config{Site: site, Conn: nc, Worker: "wk"})
+	cfg.Conn = nc
+	svc, err = New(cfg)
 	if err != nil {
 		t.Fatal(err)
 	}
