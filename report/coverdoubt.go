@@ -55,7 +55,9 @@ const inconsistentCurrent = 2.0
 // s, may be a model artefact rather than a conductor: s is a weak line
 // (under weakCoverShare of the strongest current in its group), or t's
 // current is not consistent along its used stations (it changes by more
-// than inconsistentCurrent times). "" when neither: "a weak line that may
+// than inconsistentCurrent times); or, stated apart from those, that its
+// cover at s is within one sigma of the ground or above it, so that the
+// readings hardly fix it. "" when none: "a weak line that may
 // be a model artefact (2.9% of the strongest current in its group; its
 // current runs from 0.549 A to 6.5 A along its track)".
 func coverDoubt(d *Document, t *Track, s Station) string {
@@ -76,8 +78,25 @@ func coverDoubt(d *Document, t *Track, s Station) string {
 	if n >= 2 && hi > inconsistentCurrent*lo {
 		why = append(why, fmt.Sprintf("its current runs from %s A to %s A along its track", num(lo), num(hi)))
 	}
+	// A cover within one sigma of the ground (or above it) is not fixed by
+	// the readings: a cable crossing 10.8 m beyond a 12 m traverse's end was
+	// read 0.66 ± 0.67 m down (truth 0.7), and before its station was placed
+	// on the traverse, -0.20 ± 0.52 m, which the sentence gave as the
+	// survey's least cover.
+	loose := ""
+	if c, ok := d.cover(s.Depth); ok {
+		if sg := d.coverSigma(s.DepthSigma); !(c > sg) {
+			loose = fmt.Sprintf("its cover there, %s m, is within one sigma of the ground or above it: the readings hardly fix its depth", PlusMinus(c, sg))
+		}
+	}
 	if len(why) == 0 {
-		return ""
+		if loose == "" {
+			return ""
+		}
+		return "a line whose depth is loosely fitted (" + loose + ")"
+	}
+	if loose != "" {
+		why = append(why, loose)
 	}
 	what := "a line"
 	if weak {

@@ -100,3 +100,42 @@ func TestLeastCoverFromDoubtfulLine(t *testing.T) {
 		})
 	}
 }
+
+// TestLeastCoverLooselyFitted: a further conductor whose depth the readings hardly
+// fix at one station (a line seen from beyond a traverse's end) may set the least
+// cover; the shallow reading is kept (the safe side), but the sentence says that its
+// cover there is within one sigma of the ground, and gives conductor 1's least cover
+// too. Fixture: brackleyDrove's steady 6 A line, its T05 station set 0.35 ± 0.30 m
+// below the sensors, so its cover is 0.05 ± 0.30 m (cover = depth less the sensors'
+// 0.30 m height, DOMAIN.md), and conductor 1's 1.27 - 0.30 = 0.97 m; with the same
+// station at 0.35 ± 0.01 m the cover is stated plainly.
+func TestLeastCoverLooselyFitted(t *testing.T) {
+	const cableCover = 1.27 - 0.30
+	for _, sigma := range []float64{0.30, 0.01} {
+		fits := brackleyDrove(func(int) float64 { return 6 })
+		e := &fits[4].Result.Sources[1]
+		e.Point[2], e.Depth, e.DepthSigma = -0.35, 0.35, sigma
+		d, err := Build(Document{}, fits, &BuildSettings{Noise: 3, SensorHeight: 0.3})
+		if err != nil {
+			t.Fatal(err)
+		}
+		lc := LeastCover(d)
+		t.Log(lc)
+		if !strings.Contains(lc, "conductor 2 at T05") {
+			t.Fatalf("%q: want the least cover at conductor 2's T05", lc)
+		}
+		if v := coverIn(t, lc, "followed: "); math.Abs(v-0.05) > 0.003 {
+			t.Errorf("least cover %.4f m, want the station's 0.05 m kept", v)
+		}
+		loose := strings.Contains(lc, "within one sigma of the ground")
+		if sigma > 0.05 {
+			if !loose || !strings.Contains(lc, "conductor 1's least cover is ") {
+				t.Errorf("%q: want the loose cover said so, and conductor 1's given", lc)
+			} else if v := coverIn(t, lc, "conductor 1's least cover is "); math.Abs(v-cableCover) > 0.003 {
+				t.Errorf("conductor 1's least cover %.4f m, want %.2f m", v, cableCover)
+			}
+		} else if loose || strings.Contains(lc, "conductor 1's") {
+			t.Errorf("a cover of 0.05 ± 0.01 m is doubted: %q", lc)
+		}
+	}
+}

@@ -94,6 +94,8 @@ import (
 //     route, then by median offset).
 //
 // Each kept track is analysed by route.Build with the primary's settings:
+// a line's station lies where its offset was measured (where it meets the
+// primary's cross section, with its depth there; see trackStation), and
 // its stations carry the group's fit statistics, so steps, cover and
 // anomalies are judged as on the primary. A track's chainage is measured
 // along its own stations from its first one, as route.Build measures it.
@@ -394,14 +396,22 @@ func trackCandidates(fits []Fit, r *route.Route, pairRoute, ac bool) [][]trackSo
 // depth, where it meets the vertical plane through p square to u (or at its
 // own point when it runs within 30 degrees of square to u in plan).
 func crossOffset(p [3]float64, u, right [2]float64, s inverse.SourceEstimate) (offset, depth float64) {
-	q := s.Point
-	depth = s.Depth
+	q, depth, _ := crossAt(p, u, s)
+	return (q[0]-p[0])*right[0] + (q[1]-p[1])*right[1], depth
+}
+
+// crossAt is where crossOffset places line s: the point q where it meets
+// the vertical plane through p square to u, its depth there, and t, how
+// far q lies along s.Dir from s.Point (0 when the line runs within 30
+// degrees of square to u in plan and is placed at its own point).
+func crossAt(p [3]float64, u [2]float64, s inverse.SourceEstimate) (q [3]float64, depth, t float64) {
+	q, depth = s.Point, s.Depth
 	if den := s.Dir[0]*u[0] + s.Dir[1]*u[1]; math.Abs(den) > 0.5 {
-		t := -((q[0]-p[0])*u[0] + (q[1]-p[1])*u[1]) / den
+		t = -((q[0]-p[0])*u[0] + (q[1]-p[1])*u[1]) / den
 		q = along(q, s.Dir, t)
 		depth -= t * s.Dir[2]
 	}
-	return (q[0]-p[0])*right[0] + (q[1]-p[1])*right[1], depth
+	return q, depth, t
 }
 
 func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
@@ -474,9 +484,34 @@ func trackStation(f *Fit, m *trackSource, primary *route.Placed) route.Station {
 	s := f.Result.Sources[j]
 	st := primary.Station
 	st.Point, st.Dir = s.Point, s.Dir
+	st.Depth, st.DepthSigma = s.Depth, s.DepthSigma
+	if uh := math.Hypot(primary.Dir[0], primary.Dir[1]); uh > 0 {
+		// The station lies where the line meets the primary's cross
+		// section (crossOffset), not at the fit's own point, the line's
+		// point nearest the readings' centre: for a line crossing the
+		// traverse obliquely beyond its ends that point lies metres off
+		// the traverse, along the route, and moves there with the
+		// azimuth's error. route.Build orients a station's current by
+		// the points of its neighbours, and a cable crossing conductor 1
+		// at 40 degrees, fitted 59 ± 11 degrees from square to a 12 m
+		// traverse whose line it crosses 10.8 m beyond the end, had its
+		// point 7 m behind the traverse and 4 m behind the previous
+		// station's: its +5.1 A was turned to -5.1 A, and read as 13 A
+		// leaving the cable (TestLocateObliqueCrossingBeyondEnds). The
+		// depth is the line's there, its sigma widened by the dip's over
+		// the distance along the line (the two taken as independent).
+		u := [2]float64{primary.Dir[0] / uh, primary.Dir[1] / uh}
+		q, depth, t := crossAt(primary.Point, u, s)
+		if finite(q[0]) && finite(q[1]) && finite(q[2]) && finite(depth) {
+			st.Point, st.Depth = q, depth
+			if s.Identifiable.Dip && finite(s.DipSigma) && s.DipSigma > 0 {
+				ds := t * math.Hypot(s.Dir[0], s.Dir[1]) * s.DipSigma * math.Pi / 180
+				st.DepthSigma = math.Hypot(s.DepthSigma, ds)
+			}
+		}
+	}
 	st.Current, st.CurrentSigma = s.Current, s.CurrentSigma
 	st.Phase, st.PhaseSigma = s.Phase, s.PhaseSigma
-	st.Depth, st.DepthSigma = s.Depth, s.DepthSigma
 	st.Dipole, st.Object = false, nil
 	st.Further = nil // the primary's further sources, judged on the primary route
 	// One line's own current, not a pair's net current.
