@@ -80,13 +80,33 @@ func BaseCorrect(rover, base *ingest.Samples, set *BaseSettings) (*BaseReport, e
 	}
 	rep, err := BaseCorrectColumns(source(rover), rover.Time, [3][]float64{rover.Bx, rover.By, rover.Bz},
 		source(base), base.Time, [3][]float64{base.Bx, base.By, base.Bz}, set)
-	if err == nil && base.Meta["horizontal_frame"] == ingest.IAGABaselineNoDECBAS {
-		rep.Warnings = append(rep.Warnings, fmt.Sprintf("base record %s holds observatory variation data in the baseline frame and its header gives no baseline declination (DECBAS): its east and north departures are turned from geographic axes by that declination", source(base)))
-	}
-	if err == nil && base.Meta["horizontal_frame"] == ingest.IAGAHENotTurned {
-		rep.Warnings = append(rep.Warnings, fmt.Sprintf("base record %s holds observatory data in H E Z, which are not turned to geographic north (only variation data are, by DECBAS): its east and north departures are those along E and H, turned from geographic axes by the angle of the observatory's H axis", source(base)))
+	if w := BaseFrameWarning(base); err == nil && w != "" {
+		rep.Warnings = append(rep.Warnings, w)
 	}
 	return rep, err
+}
+
+// BaseFrameWarning returns the warning BaseCorrect gives when the east and
+// north of the base record are not geographic, so that its departures are
+// not along the survey's east and north: IAGA-2002 variation data whose
+// header gives no DECBAS, or H E Z data of another type, which are not
+// turned (ingest.IAGABaselineNoDECBAS, ingest.IAGAHENotTurned); "" for
+// any other base. The elements named are those the file reports ("H E"
+// for a file of H and E alone). The reader warns of the same in its own
+// words unless it is read with ingest.WithIAGAFrameWarning(false), as a
+// caller that shows both should read it.
+func BaseFrameWarning(base *ingest.Samples) string {
+	switch base.Meta["horizontal_frame"] {
+	case ingest.IAGABaselineNoDECBAS:
+		return fmt.Sprintf("base record %s holds observatory variation data in the baseline frame and its header gives no baseline declination (DECBAS): its east and north departures are turned from geographic axes by that declination", source(base))
+	case ingest.IAGAHENotTurned:
+		el := ingest.IAGAVectorElements(base.Meta["elements"])
+		if el == "" {
+			el = "H E"
+		}
+		return fmt.Sprintf("base record %s holds observatory data in %s, which are not turned to geographic north (only variation data are, by DECBAS): its east and north departures are those along E and H, turned from geographic axes by the angle of the observatory's H axis", source(base), el)
+	}
+	return ""
 }
 
 // Tilt rotates sensor-frame readings of s to east-north-up in place, from

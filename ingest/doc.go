@@ -88,8 +88,10 @@
 // taken as absolute and never turned: H D Z then gives geographic east and
 // north, but H E Z gives E and H, the observatory's own horizontal axes,
 // which are not the geographic X and Y; such data are marked
-// IAGAHENotTurned, with a warning (base-station correction warns too),
-// unless the baseline frame is kept (IAGABaselineKept).
+// IAGAHENotTurned, with a warning (base-station correction warns too;
+// WithIAGAFrameWarning(false) leaves the reader's out), unless the baseline
+// frame is kept (IAGABaselineKept). The warnings name the elements the
+// column line reports (IAGAVectorElements): "H E" for a file with no Z.
 // UVW is left in the instrument's axes and marked FrameSensor.
 //
 // # Missing values

@@ -288,18 +288,41 @@ func newIAGAReader(name string, rd io.Reader, cfg *config) (*iagaReader, error) 
 		}
 		pl.desc[c] = h + ": not reported"
 	}
-	if noDECBAS {
-		pl.warn("%s: IAGA-2002 variation data in %s without a DECBAS comment in the header: east and north are those of the observatory's baseline frame (H along the baseline declination), not geographic; give the header its \"# DECBAS\" line to turn them", name, strings.Join(strings.Split(set, ""), " "))
+	// The elements named in the warnings are those the file reports: a
+	// file of H and E alone (Reported HENULNUL) is not said to hold Z.
+	read := IAGAVectorElements(meta[MetaPrefix+"elements"])
+	if noDECBAS && !cfg.noFrameWarning {
+		pl.warn("%s: IAGA-2002 variation data in %s without a DECBAS comment in the header: east and north are those of the observatory's baseline frame (H along the baseline declination), not geographic; give the header its \"# DECBAS\" line to turn them", name, read)
 	}
-	if heNotTurned {
+	if heNotTurned && !cfg.noFrameWarning {
 		what := "data"
 		if t := strings.TrimSpace(meta[MetaPrefix+"data_type"]); t != "" {
 			what = strings.ToLower(t) + " data"
 		}
-		pl.warn("%s: IAGA-2002 %s in H E Z: east and north are read as E and H, the observatory's own horizontal axes, not geographic east and north (which IAGA-2002 gives as Y and X); only variation data are turned to geographic north, by the header's \"# DECBAS\" line; keeping the observatory's frame (--iaga-baseline-frame; ingest.WithIAGABaselineFrame) reads them so without this warning", name, what)
+		pl.warn("%s: IAGA-2002 %s in %s: east and north are read as E and H, the observatory's own horizontal axes, not geographic east and north (which IAGA-2002 gives as Y and X); only variation data are turned to geographic north, by the header's \"# DECBAS\" line; keeping the observatory's frame (--iaga-baseline-frame; ingest.WithIAGABaselineFrame) reads them so without this warning", name, what, read)
 	}
 	r.bsin, r.bcos = math.Sincos(r.baseline)
 	return r, nil
+}
+
+// IAGAVectorElements names the vector elements of an IAGA-2002 file as it
+// reports them, from its Meta["elements"] (the four element names of the
+// column line run together, as "HEZF" or "HENULNUL"): the first three,
+// those not reported (NUL) left out, separated by spaces, as "H E Z" or
+// "H E".
+func IAGAVectorElements(elements string) string {
+	var names []string
+	for n := 0; n < 3 && elements != ""; n++ {
+		e := elements[:1]
+		if strings.HasPrefix(strings.ToUpper(elements), "NUL") {
+			e = elements[:3]
+		}
+		elements = elements[len(e):]
+		if !strings.EqualFold(e, "NUL") {
+			names = append(names, e)
+		}
+	}
+	return strings.Join(names, " ")
 }
 
 // toENU turns one row of IAGA elements into east, north, up nT, turning

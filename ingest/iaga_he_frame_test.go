@@ -2,6 +2,7 @@ package ingest
 
 import (
 	"math"
+	"os"
 	"path/filepath"
 	"strings"
 	"testing"
@@ -9,8 +10,8 @@ import (
 	"undercurrent/ingest/ingesttest"
 )
 
-// heWarning is the start of the warning for H E Z data that are not turned.
-const heWarning = "in H E Z: east and north are read as E and H"
+// heWarning is part of the warning for H E Z data that are not turned.
+const heWarning = ": east and north are read as E and H"
 
 // TestIAGAHENotGeographicReal checks the real adjusted Boulder file
 // BOU202005adj.min (Reported HENULNUL, Data Type adjusted, no DECBAS;
@@ -27,8 +28,10 @@ func TestIAGAHENotGeographicReal(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if !hasWarning(in.Warnings, "adjusted data "+heWarning) {
-		t.Errorf("warnings %q, want one saying H E Z adjusted data are not geographic", in.Warnings)
+	// The file reports H and E alone (BOUH BOUE BOUNUL BOUNUL): the
+	// warning names those, not H E Z.
+	if !hasWarning(in.Warnings, "adjusted data in H E"+heWarning) {
+		t.Errorf("warnings %q, want one saying adjusted data in H E are not geographic", in.Warnings)
 	}
 	if in.Meta["horizontal_frame"] != IAGAHENotTurned {
 		t.Errorf("horizontal_frame %q, want %q", in.Meta["horizontal_frame"], IAGAHENotTurned)
@@ -95,7 +98,7 @@ func TestIAGAHENotGeographicTypes(t *testing.T) {
 			t.Errorf("%s: %v", c.name, err)
 			continue
 		}
-		if got := hasWarning(in.Warnings, heWarning); got != c.warn {
+		if got := hasWarning(in.Warnings, "in H E Z"+heWarning); got != c.warn {
 			t.Errorf("%s: warned %v, want %v (warnings %q)", c.name, got, c.warn, in.Warnings)
 		}
 		if got := in.Meta["horizontal_frame"] == IAGAHENotTurned; got != c.warn {
@@ -111,4 +114,103 @@ func hasWarning(warnings []string, part string) bool {
 		}
 	}
 	return false
+}
+
+// TestIAGAElementsNamedAsReported checks that the frame warnings name the
+// elements the file reports, from the column line: the real adjusted
+// Boulder file BOU202005adj.min (INTERMAGNET data from the USGS,
+// SOURCE.md) has columns BOUH BOUE BOUNUL BOUNUL, so it holds H and E and
+// no Z; the real 1-second Boulder file BOU20200101vsec.sec has BOUH BOUE
+// BOUZ BOUF. Before, both were said to be "in H E Z". The same holds for
+// the warning on variation data without DECBAS, shown here on the real
+// 1-second file with its DECBAS line removed and its Z and F columns
+// marked NUL (IAGA-2002: "NUL" names an element not reported).
+func TestIAGAElementsNamedAsReported(t *testing.T) {
+	for _, c := range []struct{ elements, want string }{
+		{"HEZF", "H E Z"}, {"HENULNUL", "H E"}, {"HDZF", "H D Z"}, {"XYZG", "X Y Z"}, {"HENULF", "H E"}, {"", ""},
+	} {
+		if got := IAGAVectorElements(c.elements); got != c.want {
+			t.Errorf("IAGAVectorElements(%q) = %q, want %q", c.elements, got, c.want)
+		}
+	}
+	in, err := Inspect(filepath.Join(ingesttest.IAGADir(t), "BOU202005adj.min"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if in.Meta["elements"] != "HENULNUL" {
+		t.Fatalf("BOU202005adj.min: elements %q, want HENULNUL from its column line", in.Meta["elements"])
+	}
+	if hasWarning(in.Warnings, "in H E Z") {
+		t.Errorf("BOU202005adj.min holds no Z, yet the warnings say H E Z: %q", in.Warnings)
+	}
+	data, err := os.ReadFile(filepath.Join(ingesttest.IAGADir(t), "BOU20200101vsec.sec"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var kept []string
+	for _, ln := range strings.SplitAfter(string(data), "\n") {
+		if strings.Contains(ln, "DECBAS") {
+			continue
+		}
+		if strings.HasPrefix(ln, "DATE") {
+			ln = strings.Replace(strings.Replace(ln, "BOUZ", "BOUNUL", 1), "BOUF   ", "BOUNUL ", 1)
+		}
+		kept = append(kept, ln)
+	}
+	p := writeFile(t, "he-variation.sec", strings.Join(kept, ""))
+	in, err = Inspect(p)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if in.Meta["elements"] != "HENULNUL" {
+		t.Fatalf("edited file: elements %q, want HENULNUL", in.Meta["elements"])
+	}
+	if !hasWarning(in.Warnings, "variation data in H E without a DECBAS comment") {
+		t.Errorf("variation H E without DECBAS: warnings %q, want one naming H E", in.Warnings)
+	}
+}
+
+// TestIAGAFrameWarningLeftOut checks WithIAGAFrameWarning(false): a caller
+// that states the frame itself (a base-station correction) reads an
+// IAGA-2002 file whose east and north are not geographic without the
+// reader's warning, while Meta["horizontal_frame"] still says so. Files:
+// the real adjusted Boulder file BOU202005adj.min (H E, not turned) and
+// the real 1-second Boulder file BOU20200101vsec.sec without its DECBAS
+// line (variation data left in the baseline frame); USGS, SOURCE.md.
+func TestIAGAFrameWarningLeftOut(t *testing.T) {
+	dir := ingesttest.IAGADir(t)
+	data, err := os.ReadFile(filepath.Join(dir, "BOU20200101vsec.sec"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var kept []string
+	for _, ln := range strings.SplitAfter(string(data), "\n") {
+		if !strings.Contains(ln, "DECBAS") {
+			kept = append(kept, ln)
+		}
+	}
+	noDECBAS := writeFile(t, "hez.sec", strings.Join(kept, ""))
+	for _, c := range []struct{ path, frame, part string }{
+		{filepath.Join(dir, "BOU202005adj.min"), IAGAHENotTurned, heWarning},
+		{noDECBAS, IAGABaselineNoDECBAS, "without a DECBAS comment"},
+	} {
+		name := filepath.Base(c.path)
+		s, err := ReadSamples(c.path, WithAllowMissing(true))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !hasWarning(s.Warnings, c.part) {
+			t.Errorf("%s by default: warnings %q, want one with %q", name, s.Warnings, c.part)
+		}
+		s, err = ReadSamples(c.path, WithAllowMissing(true), WithIAGAFrameWarning(false))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if hasWarning(s.Warnings, c.part) {
+			t.Errorf("%s with WithIAGAFrameWarning(false): warnings %q", name, s.Warnings)
+		}
+		if s.Meta["horizontal_frame"] != c.frame {
+			t.Errorf("%s with WithIAGAFrameWarning(false): horizontal_frame %q, want %q", name, s.Meta["horizontal_frame"], c.frame)
+		}
+	}
 }

@@ -76,6 +76,7 @@ type config struct {
 	groupOrder        bool // time must not go backwards within each group (WithTimeOrder)
 	allowUnterminated bool // Arrow IPC stream files may lack the end-of-stream marker
 	keepBaseline      bool // IAGA-2002: leave variation data in the baseline frame (WithIAGABaselineFrame)
+	noFrameWarning    bool // IAGA-2002: no warning that east and north are not geographic (WithIAGAFrameWarning)
 	decimalComma      int  // CSV: 0 detect, 1 decimal commas, -1 decimal points (WithDecimalComma)
 	batchRows         int
 	chunkBytes        int
@@ -310,6 +311,16 @@ func WithAllowUnterminatedStream(ok bool) Option {
 // are never turned, are then read without the warning that their east and
 // north are not geographic (IAGAHENotTurned).
 func WithIAGABaselineFrame(keep bool) Option { return func(c *config) { c.keepBaseline = keep } }
+
+// WithIAGAFrameWarning(false) leaves out the warning that the east and
+// north of an IAGA-2002 file are not geographic: H E Z data other than
+// variation data (IAGAHENotTurned), and variation data whose header gives
+// no DECBAS (IAGABaselineNoDECBAS). Meta["horizontal_frame"] says so all
+// the same. It is for a caller that states it in its own words, as a
+// base-station correction does (calibrate.BaseCorrect, whose warning says
+// what it means for the correction), so that it is not given twice. By
+// default (true) the reader warns.
+func WithIAGAFrameWarning(on bool) Option { return func(c *config) { c.noFrameWarning = !on } }
 
 // WithDecimalComma says whether CSV numbers write their decimals with a
 // comma (12,5) instead of a point (12.5), as spreadsheets do in many locales.

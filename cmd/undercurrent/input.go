@@ -189,9 +189,12 @@ func checkOption(flag, prefix string, opt ingest.Option) error {
 // --time-order and --iaga-baseline-frame. The flags that describe the
 // survey logs' layout (--column, --unit, --header, --delimiter, --comment,
 // --decimal-comma, --frame, --origin) do not: a base log comes from
-// another instrument, usually in another format.
+// another instrument, usually in another format. An IAGA-2002 base whose
+// east and north are not geographic is warned of once, by the base
+// correction (calibrate.BaseFrameWarning), which says what that means for
+// the correction: the reader's own warning of it is left out.
 func (f *readFlags) baseOptions(fs *pflag.FlagSet) []ingest.Option {
-	opts := []ingest.Option{ingest.WithAllowMissing(true), ingest.WithIAGABaselineFrame(f.iagaBaseline)}
+	opts := []ingest.Option{ingest.WithAllowMissing(true), ingest.WithIAGABaselineFrame(f.iagaBaseline), ingest.WithIAGAFrameWarning(false)}
 	if f.allowUnterminated {
 		opts = append(opts, ingest.WithAllowUnterminatedStream(true))
 	}

@@ -617,6 +617,12 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 	var baseNotes []string
 	var seen surveyReadings
 	baseFrameWarned := false
+	// The base correction's warning that the base record's east and north
+	// are not geographic (the reader's is left out: baseOptions).
+	baseFrameNote, baseFrameSaid := "", false
+	if base != nil {
+		baseFrameNote = calibrate.BaseFrameWarning(base)
+	}
 	for k, path := range logs {
 		if o.coil.on() {
 			// A field unit the log gives its own field columns.
@@ -737,6 +743,14 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			}
 			baseNotes = append(baseNotes, baseSummary(path, rep))
 			for _, w := range rep.Warnings {
+				// The base record's frame is the same for every
+				// survey log: said once, with the first.
+				if w == baseFrameNote {
+					if baseFrameSaid {
+						continue
+					}
+					baseFrameSaid = true
+				}
 				sv.warnings = append(sv.warnings, path+": "+w)
 			}
 		}

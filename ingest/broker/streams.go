@@ -29,9 +29,9 @@ type StreamSettings struct {
 	// data (a gateway sending late or malformed batches, a log replayed
 	// twice) cannot fill the store that new data needs. The broker
 	// reserves the bound in its store when the stream is made, and refuses
-	// a bound it cannot reserve (Setup then fails). 0 means
-	// DeadLetterDefault, or about a quarter of a store too small for four
-	// times that, at least MinDeadLetterMaxBytes, and no bound on a store
+	// a bound it cannot reserve (Setup then fails with a *BoundError). 0
+	// means DeadLetterDefault, or about a quarter of a store too small for
+	// four times that, at least DeadLetterMin, and no bound on a store
 	// that cannot reserve even that (see defaultDeadLetterBound); Stores
 	// says what was applied. Dead letters are also dropped after
 	// DeadLetterMaxAge.
@@ -39,6 +39,13 @@ type StreamSettings struct {
 	// DeadLetterDefault is the bound DeadLetterMaxBytes 0 aims at; 0
 	// means DefaultDeadLetterMaxBytes.
 	DeadLetterDefault int64
+	// DeadLetterMin is the least bound DeadLetterMaxBytes 0 is cut to on
+	// a small store, tried before the dead letters are left unbounded;
+	// 0 means MinDeadLetterMaxBytes. A caller that takes messages of up
+	// to N bytes gives 4 N (the live pipeline: four times
+	// max_message_bytes, the least dlq_max_bytes it takes), so that a
+	// store left unbounded could not have held any bound it allows.
+	DeadLetterMin int64
 	// Duplicates is the deduplication window of estimates and alarms; 0
 	// means 1 h.
 	Duplicates time.Duration
@@ -108,13 +115,13 @@ func Setup(ctx context.Context, js jetstream.JetStream, set StreamSettings) (*St
 		}
 		var err error
 		if cfg.Name == StreamDeadLetter && set.DeadLetterMaxBytes == 0 {
-			err = defaultDeadLetterBound(ctx, js, &cfg, cmp.Or(set.DeadLetterDefault, DefaultDeadLetterMaxBytes))
+			err = defaultDeadLetterBound(ctx, js, &cfg, cmp.Or(set.DeadLetterDefault, DefaultDeadLetterMaxBytes), cmp.Or(set.DeadLetterMin, MinDeadLetterMaxBytes))
 		} else {
 			err = createOrUpdateStream(ctx, js, cfg)
 		}
 		if err != nil {
 			if insufficientStorage(err) && cfg.MaxBytes > 0 {
-				return nil, fmt.Errorf("broker: stream %s: %w (its byte bound, %d, is more than the store can reserve)", cfg.Name, err, cfg.MaxBytes)
+				return nil, &BoundError{Stream: cfg.Name, MaxBytes: cfg.MaxBytes, Err: err}
 			}
 			return nil, fmt.Errorf("broker: stream %s: %w", cfg.Name, err)
 		}
@@ -153,23 +160,42 @@ type Stores struct {
 	DeadLetterMaxBytes int64
 }
 
+// BoundError is Setup's error for a stream whose byte bound the store
+// cannot reserve.
+type BoundError struct {
+	Stream   string // the stream's name
+	MaxBytes int64  // the bound asked for
+	Err      error  // the broker's refusal
+}
+
+func (e *BoundError) Error() string {
+	return fmt.Sprintf("broker: stream %s: %v (its byte bound, %d, is more than the store can reserve)", e.Stream, e.Err, e.MaxBytes)
+}
+
+func (e *BoundError) Unwrap() error { return e.Err }
+
 // defaultDeadLetterBound creates or updates the dead-letter stream cfg
 // with a default bound: want, or, on a store that cannot reserve four
 // times that, a quarter of the largest power-of-two fraction of four
 // times it that the store can reserve (found by asking for it), so that
 // the dead letters never take more than about a quarter of the room left;
-// at least MinDeadLetterMaxBytes, and no bound when the store cannot
-// reserve even that. cfg.MaxBytes is left as applied.
-func defaultDeadLetterBound(ctx context.Context, js jetstream.JetStream, cfg *jetstream.StreamConfig, want int64) error {
-	for try := 4 * max(want, MinDeadLetterMaxBytes); try >= MinDeadLetterMaxBytes; try /= 2 {
+// at least floor (which is always tried: the halving need not land on
+// it), and no bound when the store cannot reserve even that. cfg.MaxBytes
+// is left as applied.
+func defaultDeadLetterBound(ctx context.Context, js jetstream.JetStream, cfg *jetstream.StreamConfig, want, floor int64) error {
+	for try := 4 * max(want, floor); ; try /= 2 {
+		try = max(try, floor)
 		cfg.MaxBytes = try
 		err := createOrUpdateStream(ctx, js, *cfg)
 		if err == nil {
-			cfg.MaxBytes = max(try/4, MinDeadLetterMaxBytes)
+			cfg.MaxBytes = max(try/4, floor)
 			return createOrUpdateStream(ctx, js, *cfg)
 		}
 		if !insufficientStorage(err) {
 			return err
+		}
+		if try == floor {
+			break
 		}
 	}
 	cfg.MaxBytes = -1

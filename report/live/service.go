@@ -181,16 +181,17 @@ func (s *Service) Run(ctx context.Context) error {
 	sctx, cancel := context.WithTimeout(ctx, 30*time.Second)
 	s.stores, err = broker.Setup(sctx, js, broker.StreamSettings{
 		Replicas: s.site.Broker.Replicas, DataMaxAge: s.site.Broker.DataRetention.Duration, DataMaxBytes: s.site.Broker.DataMaxBytes,
-		DeadLetterMaxBytes: s.site.Broker.DLQMaxBytes, DeadLetterDefault: s.site.dlqDefault(), LeaseTTL: s.site.Service.LeaseTTL.Duration, Memory: s.memory})
+		DeadLetterMaxBytes: s.site.Broker.DLQMaxBytes, DeadLetterDefault: s.site.dlqDefault(), DeadLetterMin: s.site.dlqMin(),
+		LeaseTTL: s.site.Service.LeaseTTL.Duration, Memory: s.memory})
 	cancel()
 	if err != nil {
-		return fmt.Errorf("live: %w", err)
+		return fmt.Errorf("live: %w%s", err, s.site.boundAdvice(err))
 	}
 	if n := s.stores.DeadLetterMaxBytes; n > 0 {
 		s.log.Info("dead letters kept up to a bound, the oldest giving way", "stream", broker.StreamDeadLetter, "max_bytes", n, "max_age", broker.DeadLetterMaxAge)
 	} else {
-		s.log.Warn("the store cannot reserve room for a bounded dead-letter stream: refused messages are kept unbounded for their max age (set broker.dlq_max_bytes, or give the store more room)",
-			"stream", broker.StreamDeadLetter, "max_age", broker.DeadLetterMaxAge)
+		msg, attrs := s.site.dlqUnboundedWarning()
+		s.log.Warn(msg, attrs...)
 	}
 	var srv *http.Server
 	if s.httpAddr != "-" {
@@ -420,6 +421,57 @@ func storeRefused(err error) bool {
 		return je.APIError().ErrorCode == errCodeInsufficientResources
 	}
 	return err != nil && strings.Contains(err.Error(), "insufficient resources")
+}
+
+// dlqUnboundedWarning is the WARN logged when the store cannot reserve a
+// bound for the dead letters, and its attributes. The broker has then
+// tried the least bound the site file allows (dlqMin, four times
+// max_message_bytes; broker.StreamSettings.DeadLetterMin), so setting
+// broker.dlq_max_bytes, which cannot be lower, would stop serve: the
+// advice is room in the store. With store_max_bytes given it says the
+// room data_max_bytes leaves (the pipeline's other streams and buckets
+// reserve none).
+func (s *Site) dlqUnboundedWarning() (string, []any) {
+	need := s.dlqMin()
+	attrs := []any{"stream", broker.StreamDeadLetter, "max_age", broker.DeadLetterMaxAge, "least_bound_bytes", need}
+	room := fmt.Sprintf(", which needs at least %d bytes", need)
+	if st := s.Broker.StoreMaxBytes; st > 0 {
+		left := max(st-s.Broker.DataMaxBytes, 0)
+		room = fmt.Sprintf(": broker.store_max_bytes %d less broker.data_max_bytes %d leaves %d bytes, and a bound needs at least %d", st, s.Broker.DataMaxBytes, left, need)
+		attrs = append(attrs, "room_bytes", left)
+	}
+	advice := "raise broker.store_max_bytes"
+	switch {
+	case s.Broker.StoreMaxBytes == 0 && s.Broker.DataMaxBytes > 0:
+		advice = "free disk space or set a larger broker.store_max_bytes, or lower broker.data_max_bytes"
+	case s.Broker.StoreMaxBytes == 0:
+		advice = "free disk space or set a larger broker.store_max_bytes"
+	case s.Broker.DataMaxBytes > 0:
+		advice = "raise broker.store_max_bytes or lower broker.data_max_bytes"
+	}
+	return fmt.Sprintf("the store cannot reserve room for a bounded dead-letter stream%s (four times service.max_message_bytes, below which broker.dlq_max_bytes cannot be set): "+
+		"refused messages are kept unbounded for their max age; to bound them, %s, and restart serve", room, advice), attrs
+}
+
+// boundAdvice is what Setup's refusal of a stream's byte bound (a
+// *broker.BoundError) adds to serve's error: which settings make room,
+// and, for the dead letters, the least broker.dlq_max_bytes taken. "" for
+// other errors.
+func (s *Site) boundAdvice(err error) string {
+	var be *broker.BoundError
+	if !errors.As(err, &be) {
+		return ""
+	}
+	switch be.Stream {
+	case broker.StreamDeadLetter:
+		if s.Broker.DLQMaxBytes > s.dlqMin() {
+			return fmt.Sprintf("; lower broker.dlq_max_bytes (to no less than %d, four times service.max_message_bytes) or broker.data_max_bytes, or raise broker.store_max_bytes", s.dlqMin())
+		}
+		return fmt.Sprintf("; broker.dlq_max_bytes cannot be less than %d (four times service.max_message_bytes): lower broker.data_max_bytes, or raise broker.store_max_bytes", s.dlqMin())
+	case broker.StreamData:
+		return "; lower broker.data_max_bytes, or raise broker.store_max_bytes"
+	}
+	return ""
 }
 
 // storeFullAdvice is the ERROR logged when the broker's store fills. The

@@ -344,7 +344,7 @@ func (s *Site) validate() error {
 	if s.Broker.StoreMaxBytes < 0 {
 		return fmt.Errorf("broker.store_max_bytes %d: want 0 (the server's default) or more", s.Broker.StoreMaxBytes)
 	}
-	minDLQ := 4 * int64(s.Service.MaxMessageBytes)
+	minDLQ := s.dlqMin()
 	switch {
 	case s.Broker.DLQMaxBytes < 0:
 		return fmt.Errorf("broker.dlq_max_bytes %d: want 0 (the default) or more", s.Broker.DLQMaxBytes)
@@ -520,6 +520,11 @@ func (s *Site) dlqDefault() int64 {
 	}
 	return max(s.Broker.DataMaxBytes/4, 4*int64(s.Service.MaxMessageBytes))
 }
+
+// dlqMin is the least dead-letter bound: four times max_message_bytes,
+// the most of a refused payload a dead letter keeps. dlq_max_bytes takes
+// no less, and the default bound is cut to no less on a small store.
+func (s *Site) dlqMin() int64 { return 4 * int64(s.Service.MaxMessageBytes) }
 
 // defaultEarthField is a DC asset's earth_field when the site file gives
 // none, nT: the geomagnetic field at the Earth's surface is about 22,000
