@@ -38,6 +38,13 @@ func newStageLine(stderr io.Writer, stage string) *stageLine {
 		return nil
 	}
 	s := &stageLine{w: w, start: time.Now(), stage: stage, stop: make(chan struct{}), done: make(chan struct{})}
+	if stageLineDelay <= 0 {
+		// Drawn at once, before the command moves on: drawn only by the
+		// loop, the first stage could be renamed before the goroutine ran,
+		// and never shown (TestStageLineOnTerminal failed so on a busy
+		// machine, the terminal showing "writing" without "simulating").
+		s.draw()
+	}
 	go s.loop()
 	return s
 }
