@@ -265,6 +265,30 @@ func waitFor(t *testing.T, timeout time.Duration, what string, cond func() bool)
 	}
 }
 
+// waitSamples waits up to 30 s until the samples counted for the
+// fenwick-lane asset in the metrics page (uc_samples_total) satisfy ok,
+// and fails naming what and the last count read.
+func waitSamples(t *testing.T, what string, metrics func() string, ok func(n float64) bool) {
+	t.Helper()
+	const prefix = `uc_samples_total{asset="fenwick-lane"} `
+	last := "none"
+	deadline := time.Now().Add(30 * time.Second)
+	for {
+		for _, l := range strings.Split(metrics(), "\n") {
+			if v, found := strings.CutPrefix(l, prefix); found {
+				last = v
+				if n, err := strconv.ParseFloat(v, 64); err == nil && ok(n) {
+					return
+				}
+			}
+		}
+		if time.Now().After(deadline) {
+			t.Fatalf("timed out after 30s waiting for %s (samples counted: %s)", what, last)
+		}
+		time.Sleep(20 * time.Millisecond)
+	}
+}
+
 // checkExactlyOnce asserts one estimate per window 0..n-1 with the known
 // answer of meanEstimator.
 func checkExactlyOnce(t *testing.T, ests []Estimate, n int) {

@@ -61,9 +61,7 @@ func TestIdleCloseWaitsForStalledConsumer(t *testing.T) {
 		return string(body)
 	}
 	h.publish(0, 1.2) // windows 0 and 1, and 20 of window 2's 50 samples per sensor
-	waitFor(t, 30*time.Second, "the worker to read 1.2 s of data", func() bool {
-		return strings.Contains(metrics(), `uc_samples_total{asset="fenwick-lane"} 360`)
-	})
+	waitSamples(t, "the worker to read 1.2 s of data", metrics, func(n float64) bool { return n == 360 })
 	ds, err := h.js.Stream(context.Background(), broker.StreamData)
 	if err != nil {
 		t.Fatal(err)
