@@ -3,6 +3,7 @@ package calibrate
 import (
 	"fmt"
 	"math"
+	"slices"
 	"sort"
 	"strings"
 	"time"
@@ -81,6 +82,84 @@ type BaseReport struct {
 	// sqrt(E² + N²) over the rover's time span, nT.
 	RangeH   float64
 	Warnings []string
+	// Gaps are the gaps of the base record that rover rows fall in, in
+	// time order: every stretch with one base reading or more missing (an
+	// interval over 1.5 base sample intervals), however short, across
+	// which the correction drew a straight line. The caller reports them
+	// with the survey's groups: the straight line is a guess at the field
+	// the base did not record, and its error is in no fit's sigma.
+	Gaps []BaseGap
+}
+
+// BaseGap is one gap of the base record that rover rows fall in.
+type BaseGap struct {
+	// From and To are the times of the base readings either side, s.
+	From, To float64
+	// Missing names the components missing in the gap ("bx", "by", "bz")
+	// when not all three are.
+	Missing []string
+	// Rows are the rover rows in the gap.
+	Rows []int
+	// LineRMS and LineMax estimate the straight line's error across the
+	// gap from the base record itself: the vector departure of the record
+	// from the straight line between its readings To-From apart, over
+	// every such span wholly recorded within LineWindow of the gap, RMS
+	// and largest, nT. Spans counts those spans; with none, both are NaN.
+	LineRMS, LineMax float64
+	Spans            int
+}
+
+// LineWindow is how far either side of a base gap, s, the record's own
+// departures from a straight line over spans of the gap's length are
+// measured (BaseGap.LineRMS): an hour, short against the diurnal
+// variation's day and long against Pc5 pulsations (150-600 s, IAGA
+// classification, Jacobs et al. 1964), so that the estimate reflects the
+// field's activity at the time of the gap.
+const LineWindow = 3600.0
+
+// lineError measures how far a record with readings at times t (all three
+// components vb present) departs from the straight line between readings
+// span s apart, over spans starting within LineWindow of [t0, t1] and
+// lying wholly outside it with no reading missing (step is the record's
+// sample interval): RMS and largest vector departure at the readings
+// inside the spans, and the number of spans.
+func lineError(t []float64, vb [3][]float64, t0, t1, step float64) (rms, worst float64, spans int) {
+	span := t1 - t0
+	n := int(math.Round(span / step)) // readings from one end to the other
+	if n < 2 || len(t) <= n {
+		return math.NaN(), math.NaN(), 0
+	}
+	lo := sort.SearchFloat64s(t, t0-LineWindow)
+	hi := sort.SearchFloat64s(t, t1+LineWindow)
+	// At most about 600 spans: a fast record has many.
+	stride := max(1, (hi-lo)/600)
+	var sum float64
+	var m int
+	for i := lo; i+n < len(t) && i < hi; i += stride {
+		j := i + n
+		if t[j] > t1+LineWindow || math.Abs(t[j]-t[i]-span) > 0.5*step {
+			continue // a reading missing in the span, or past the window
+		}
+		if t[i] < t1 && t[j] > t0 {
+			continue // overlaps the gap itself
+		}
+		for q := i + 1; q < j; q++ {
+			f := (t[q] - t[i]) / (t[j] - t[i])
+			d2 := 0.0
+			for k := 0; k < 3; k++ {
+				d := vb[k][q] - (vb[k][i] + f*(vb[k][j]-vb[k][i]))
+				d2 += d * d
+			}
+			sum += d2
+			m++
+			worst = math.Max(worst, math.Sqrt(d2))
+		}
+		spans++
+	}
+	if m == 0 {
+		return math.NaN(), math.NaN(), 0
+	}
+	return math.Sqrt(sum / float64(m)), worst, spans
 }
 
 // baseSeries is one base component without missing values.
@@ -279,7 +358,7 @@ func BaseCorrectColumns(roverName string, rt []float64, rb [3][]float64, baseNam
 				}
 			}
 		}
-		return nil, fmt.Errorf("calibrate: base correction: base record %s (%s to %s) does not cover the rover log %s (%s to %s): %d of %d readings, the first at %s, lie more than %g s outside it, where the base's nearest value held is no correction; give a base record that covers the survey, or allow the hold (locate --base-hold SECONDS)",
+		return nil, fmt.Errorf("calibrate: base correction: base record %s (%s to %s) does not cover the rover log %s (%s to %s): %d of %d readings, the first at %s, lie more than %g s outside it, where the base's nearest value held is no correction; give a base record that covers the survey (locate --base may be given more than once: observatory files hold one day each, and a survey across midnight UTC needs both days), or allow the hold (locate --base-hold SECONDS)",
 			baseName, ft(blo), ft(bhi), roverName, ft(rlo), ft(rhi), far, len(rt), ft(rt[first]), math.Round(maxHold*1e6)/1e6)
 	}
 
@@ -288,6 +367,7 @@ func BaseCorrectColumns(roverName string, rt []float64, rb [3][]float64, baseNam
 	type gapKey struct{ t0, t1 float64 }
 	long, allowed := map[gapKey]*baseGap{}, 0
 	var inLong []int
+	bridged := map[gapKey]*BaseGap{}
 	for i, t := range rt {
 		in, wide := false, false
 		seen := map[gapKey]bool{}
@@ -295,6 +375,21 @@ func BaseCorrectColumns(roverName string, rt []float64, rb [3][]float64, baseNam
 			_, _, g, end := present[k].at(t)
 			if g > defGap {
 				wide = true
+			}
+			if g > 1.5*step {
+				// A base reading or more is missing: bridged.
+				key := gapKey{present[k].t[end-1], present[k].t[end]}
+				bg := bridged[key]
+				if bg == nil {
+					bg = &BaseGap{From: key.t0, To: key.t1}
+					bridged[key] = bg
+				}
+				if !slices.Contains(bg.Missing, fieldNames[k]) {
+					bg.Missing = append(bg.Missing, fieldNames[k])
+				}
+				if n := len(bg.Rows); n == 0 || bg.Rows[n-1] != i {
+					bg.Rows = append(bg.Rows, i)
+				}
 			}
 			if g <= maxGap {
 				continue
@@ -348,6 +443,29 @@ func BaseCorrectColumns(roverName string, rt []float64, rb [3][]float64, baseNam
 		}
 	}
 	rep.InGap = allowed
+	if len(bridged) > 0 {
+		// The record with all three components, for the straight line's
+		// error measured on the record itself.
+		var ft3 []float64
+		var fb [3][]float64
+		for i, t := range bt {
+			if skip[i] || math.IsNaN(t) || !finite(bb[0][i]) || !finite(bb[1][i]) || !finite(bb[2][i]) {
+				continue
+			}
+			ft3 = append(ft3, t)
+			for k := 0; k < 3; k++ {
+				fb[k] = append(fb[k], bb[k][i])
+			}
+		}
+		for _, g := range bridged {
+			if len(g.Missing) == 3 {
+				g.Missing = nil
+			}
+			g.LineRMS, g.LineMax, g.Spans = lineError(ft3, fb, g.From, g.To, step)
+			rep.Gaps = append(rep.Gaps, *g)
+		}
+		sort.Slice(rep.Gaps, func(a, b int) bool { return rep.Gaps[a].From < rep.Gaps[b].From })
+	}
 	for k := 0; k < 3; k++ {
 		rep.Range[k] = hi[k] - lo[k]
 		rep.MaxAbs[k] = math.Max(math.Abs(lo[k]), math.Abs(hi[k]))

@@ -102,6 +102,35 @@ type Correction struct {
 	// Coil describes the induction coils whose voltages were converted to
 	// field (locate --coil or --coil-response); nil otherwise.
 	Coil *CoilResponse `json:"coil,omitempty"`
+	// BaseGaps are the gaps of the base-station record that survey
+	// readings fell in, bridged by a straight line (locate); the groups
+	// named are not counted sound. Empty for other corrections.
+	BaseGaps []BaseGap `json:"base_gaps,omitempty"`
+}
+
+// BaseGap is a gap in the base-station record that survey readings fell
+// in: the base correction drew a straight line across it, whose error no
+// fit's sigma holds.
+type BaseGap struct {
+	// Log is the survey log whose readings fell in it.
+	Log string `json:"log"`
+	// From and To are the times of the base readings either side (UTC,
+	// RFC 3339, or seconds for relative times), Seconds the span.
+	From    string  `json:"from"`
+	To      string  `json:"to"`
+	Seconds float64 `json:"seconds"`
+	// Missing names the field components missing when not all three are.
+	Missing []string `json:"missing,omitempty"`
+	// Readings counts the survey readings in the gap, and Groups names
+	// the groups they belong to (empty when the run was not grouped).
+	Readings int      `json:"readings"`
+	Groups   []string `json:"groups,omitempty"`
+	// LineErrorRMS and LineErrorMax estimate the straight line's error
+	// from the base record itself: its departure from straight lines
+	// over spans as long within an hour of the gap, RMS and largest, nT.
+	// Nil when the record has no such span.
+	LineErrorRMS *float64 `json:"line_error_rms_nt,omitempty"`
+	LineErrorMax *float64 `json:"line_error_max_nt,omitempty"`
 }
 
 // CoilResponse is the response of the induction coils of a coil log, as

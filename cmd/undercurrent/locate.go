@@ -31,7 +31,8 @@ import (
 // locateOptions are the settings of one locate run, from flags.
 type locateOptions struct {
 	calibration  string
-	base         string
+	base         string   // the base log, or the base logs joined by " + " for messages
+	bases        []string // the base logs given (--base, once or more)
 	baseHold     float64
 	baseHoldSet  bool // --base-hold given (0 then means no hold at all)
 	baseUnits    []string
@@ -81,7 +82,7 @@ var resultFiles = []string{report.FileJSON, report.FileCSV, report.FileFindings,
 
 func (o *locateOptions) setFlags(fs *pflag.FlagSet) {
 	fs.StringVar(&o.calibration, "calibration", "", "apply the sensor calibration in `CAL.json` (from undercurrent calibrate)")
-	fs.StringVar(&o.base, "base", "", "subtract the diurnal variation recorded by the base station log `BASE` (any log format, IAGA-2002 too)")
+	fs.StringArrayVar(&o.bases, "base", nil, "subtract the diurnal variation recorded by the base station log `BASE` (any log format, IAGA-2002 too); give it again for a record in several files (daily observatory files across midnight UTC), joined in time order (where files overlap they must hold the same readings)")
 	fs.Float64Var(&o.baseHold, "base-hold", 0, "correct survey readings up to `S` seconds before or after the base log with its nearest value held, and interpolate the base across its gaps up to S seconds long, S above or below the default (default for both: five base sample intervals, at least 60 s and at most 300 s; 0: no hold at all, and no reading missing from the base; readings further out, or in a longer gap, are refused, since a held value or a straight line across the gap is no correction)")
 	fs.StringSliceVar(&o.baseColumns, "base-column", nil, "name the base log's columns, `CANON=NAME` as --column does for the survey logs (time=Time,bx=magX,by=magY,bz=magZ); not for an IAGA-2002 base")
 	fs.StringSliceVar(&o.baseUnits, "base-unit", nil, "units of the base log's columns, `CANON=UNIT` as --unit gives them for the survey logs (bx=uT,by=uT,bz=uT); a base log whose field is as steady as the Earth's but whose median lies outside the Earth's field band in nT is refused without it")
@@ -121,6 +122,10 @@ func (o *locateOptions) check(fs *pflag.FlagSet) error {
 			return usageErrorf("--count %q: want 1, 2, 3, 4 or auto", o.count)
 		}
 		o.nCount = n
+	}
+	if fs != nil && fs.Lookup("base") != nil {
+		// The flag set binds o.bases anew for each run; o.base follows.
+		o.base = strings.Join(o.bases, " + ")
 	}
 	o.baseHoldSet = fs != nil && fs.Changed("base-hold")
 	if o.baseHold < 0 || math.IsNaN(o.baseHold) {
@@ -267,8 +272,16 @@ reads logs, apply to the survey logs. Of them, only --time-order,
 so it is read with its own column names (--base-column), units
 (--base-unit), axes (--base-frame ned, or its own "# undercurrent.frame:
 ned" line; else east, north, up) and layout, and with
-missing values allowed (its gaps are reported). A base log whose time goes
-backwards (with --time-order any) is put in time order, with a warning.
+missing values allowed. A gap in it that survey readings fall in, shorter
+than the limit (see --base-hold), is bridged by a straight line; one over
+a minute long is reported: its span, the readings and groups in it, and
+the straight line's likely error from the base record nearby; those groups
+are marked for review and not counted sound, since that error is in no
+fit's sigma (a shorter gap is only counted in the base summary). --base
+may be given more than once (daily observatory files across midnight UTC):
+the files are joined in time order; where they overlap they must hold the
+same readings. A base log whose time goes backwards (with --time-order
+any) is put in time order, with a warning.
 Each survey log's median |B| is checked against the Earth's field (about
 22000-67000 nT at the surface, in every raw log): outside 15000-80000 nT
 the run warns that the field's unit is probably wrong (fine for a log with
@@ -464,6 +477,9 @@ type survey struct {
 	// phasors' noise per axis from the windows' own sine-fit residuals
 	// (calibrate.Window.Sigma), nT.
 	windowN, windowSigma []float64
+	// baseGaps are the gaps of the base record that survey readings fell
+	// in (basegaps.go).
+	baseGaps []baseGapUse
 }
 
 // fitNoise is the noise of the fitted values, nT, for a reading noise of
@@ -549,51 +565,25 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 	var base *ingest.Samples
 	var baseLeftOut []int // base rows left out as spikes
 	if o.base != "" {
+		paths := o.bases
+		if len(paths) == 0 {
+			paths = []string{o.base}
+		}
+		// Each file is read and checked as the one base log was; the
+		// files are then joined in time order.
+		parts := make([]*ingest.Samples, 0, len(paths))
+		for _, path := range paths {
+			one := *o
+			one.base = path
+			b, err := readBaseFile(ctx, &one, logs, sv)
+			if err != nil {
+				return nil, err
+			}
+			parts = append(parts, b)
+		}
 		var err error
-		bopts := o.baseOpts
-		if bopts == nil {
-			bopts = o.read.baseOptions(nil)
-		}
-		if bopts, err = baseUnitOptions(o, logs, bopts); err != nil {
+		if base, err = joinBaseLogs(parts); err != nil {
 			return nil, err
-		}
-		if base, err = readSamples(ctx, o.base, bopts...); err != nil {
-			return nil, baseReadError(err)
-		}
-		if err := checkBaseLog(o, base); err != nil {
-			return nil, err
-		}
-		if w, err := checkBaseGroups(o.base, bopts, base); err != nil {
-			return nil, err
-		} else if w != "" {
-			sv.alerts = append(sv.alerts, w)
-		}
-		doc.Inputs = append(doc.Inputs, fileInput("base", o.base, base.Len()))
-		for _, w := range base.Warnings {
-			sv.warnings = append(sv.warnings, cliWording(w))
-		}
-		// The base log's field unit is checked as a survey log's is: a
-		// base in uT read as nT made a correction 1000 times too small,
-		// without a word.
-		w, err := checkBaseUnits(ctx, o, base, bopts)
-		if err != nil {
-			return nil, err
-		}
-		if w != "" {
-			sv.warnings = append(sv.warnings, w)
-		}
-		// The base correction interpolates in time: a base log read with
-		// --time-order any or per-group is put in time order first.
-		back, orig := sortByTime(base)
-		if back > 0 {
-			sv.warnings = append(sv.warnings, fmt.Sprintf("%s: time goes backwards at %s (--time-order %s): the base log was put in time order for the base correction", o.base, plural(back, "row"), o.read.timeOrder))
-		}
-		// A row repeated exactly is left out; a time repeated with other
-		// values is refused, naming its file lines.
-		if w, err := dropRepeatedBaseRows(o.base, base, orig); err != nil {
-			return nil, err
-		} else if w != "" {
-			sv.warnings = append(sv.warnings, w)
 		}
 		// A spike at the base is subtracted from every survey reading
 		// taken at that moment: it is always looked for, and left out.
@@ -742,6 +732,9 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 				return nil, err
 			}
 			baseNotes = append(baseNotes, baseSummary(path, rep))
+			if w := noteBaseGaps(sv, o, s, rep); w != "" {
+				sv.alerts = append(sv.alerts, path+": "+w)
+			}
 			for _, w := range rep.Warnings {
 				// The base record's frame is the same for every
 				// survey log: said once, with the first.
@@ -792,6 +785,61 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		}
 	}
 	return sv, nil
+}
+
+// readBaseFile reads one base log, o.base, checks it, records it among
+// the document's inputs and puts it in time order with its exactly
+// repeated rows left out; its warnings go to sv.
+func readBaseFile(ctx context.Context, o *locateOptions, logs []string, sv *survey) (*ingest.Samples, error) {
+	doc := sv.doc
+	var err error
+	var base *ingest.Samples
+	bopts := o.baseOpts
+	if bopts == nil {
+		bopts = o.read.baseOptions(nil)
+	}
+	if bopts, err = baseUnitOptions(o, logs, bopts); err != nil {
+		return nil, err
+	}
+	if base, err = readSamples(ctx, o.base, bopts...); err != nil {
+		return nil, baseReadError(err)
+	}
+	if err := checkBaseLog(o, base); err != nil {
+		return nil, err
+	}
+	if w, err := checkBaseGroups(o.base, bopts, base); err != nil {
+		return nil, err
+	} else if w != "" {
+		sv.alerts = append(sv.alerts, w)
+	}
+	doc.Inputs = append(doc.Inputs, fileInput("base", o.base, base.Len()))
+	for _, w := range base.Warnings {
+		sv.warnings = append(sv.warnings, cliWording(w))
+	}
+	// The base log's field unit is checked as a survey log's is: a
+	// base in uT read as nT made a correction 1000 times too small,
+	// without a word.
+	w, err := checkBaseUnits(ctx, o, base, bopts)
+	if err != nil {
+		return nil, err
+	}
+	if w != "" {
+		sv.warnings = append(sv.warnings, w)
+	}
+	// The base correction interpolates in time: a base log read with
+	// --time-order any or per-group is put in time order first.
+	back, orig := sortByTime(base)
+	if back > 0 {
+		sv.warnings = append(sv.warnings, fmt.Sprintf("%s: time goes backwards at %s (--time-order %s): the base log was put in time order for the base correction", o.base, plural(back, "row"), o.read.timeOrder))
+	}
+	// A row repeated exactly is left out; a time repeated with other
+	// values is refused, naming its file lines.
+	if w, err := dropRepeatedBaseRows(o.base, base, orig); err != nil {
+		return nil, err
+	} else if w != "" {
+		sv.warnings = append(sv.warnings, w)
+	}
+	return base, nil
 }
 
 // baseUnitOptions checks the base log against the survey logs and adds
@@ -1517,6 +1565,8 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 	if err != nil {
 		return nil, err
 	}
+	// Groups whose readings fell in a gap of the base record.
+	baseGapsDocument(doc, sv)
 	// Build puts a misfit every group shares first; an alert that names a
 	// cause (spikes left in, a route fitted as one line) still leads.
 	doc.Warnings = alertsFirst(doc.Warnings, alerts)
@@ -1744,6 +1794,23 @@ func baseSummary(path string, r *calibrate.BaseReport) string {
 	s := fmt.Sprintf("%s: departures up to %.1f/%.1f/%.1f nT (east/north/up) removed", path, r.MaxAbs[0], r.MaxAbs[1], r.MaxAbs[2])
 	if r.Outside > 0 {
 		s += fmt.Sprintf("; %d readings outside the base record", r.Outside)
+	}
+	// The base gaps that readings fell in, bridged by a straight line:
+	// over a minute long (their groups marked for review, basegaps.go),
+	// and shorter.
+	var long, short, nl, ns int
+	for _, g := range r.Gaps {
+		if g.To-g.From > calibrate.MinGapLimit {
+			long, nl = long+1, nl+len(g.Rows)
+		} else {
+			short, ns = short+1, ns+len(g.Rows)
+		}
+	}
+	if long > 0 {
+		s += fmt.Sprintf("; %s in %s of the base record over a minute long, bridged by a straight line (their groups are marked for review)", plural(nl, "reading"), plural(long, "gap"))
+	}
+	if short > 0 {
+		s += fmt.Sprintf("; %s in %s of the base record of a minute or less, bridged by a straight line", plural(ns, "reading"), plural(short, "gap"))
 	}
 	return s
 }
