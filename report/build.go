@@ -1004,8 +1004,9 @@ func buildSource(s inverse.SourceEstimate, pts [][3]float64, ac bool) Source {
 }
 
 // buildProfile keeps a thinned copy of the readings against the fit. For
-// AC it keeps the in-phase part: each phasor turned by minus the strongest
-// source's phase, real part.
+// AC it keeps the in-phase part (each phasor turned by minus the strongest
+// source's phase, real part) and the quadrature part (imaginary part) of
+// the same readings.
 func buildProfile(f *Fit, max int) (*Profile, error) {
 	p, res := f.Problem, f.Result
 	s := res.Sources[0]
@@ -1019,16 +1020,30 @@ func buildProfile(f *Fit, max int) (*Profile, error) {
 		return nil, errors.New("report: no predictions to plot")
 	}
 	rot := cmplx.Rect(1, -s.Phase*math.Pi/180)
-	re := func(v [][3]complex128) [][3]float64 {
+	part := func(v [][3]complex128, f func(complex128) float64) [][3]float64 {
 		out := make([][3]float64, len(v))
 		for i, b := range v {
 			for k := range 3 {
-				out[i][k] = real(b[k] * rot)
+				out[i][k] = f(b[k] * rot)
 			}
 		}
 		return out
 	}
-	return NewProfile(p.Points, re(p.Phasors), re(res.PredictedPhasors), s.Point, s.Dir, ComponentACInPhase, max)
+	re := func(c complex128) float64 { return real(c) }
+	im := func(c complex128) float64 { return imag(c) }
+	pr, err := NewProfile(p.Points, part(p.Phasors, re), part(res.PredictedPhasors, re), s.Point, s.Dir, ComponentACInPhase, max)
+	if err != nil {
+		return nil, err
+	}
+	// The same positions, point and direction sort and thin the readings
+	// the same way (NewProfile's sort is stable), so the quadrature parts
+	// line up with the in-phase ones reading by reading.
+	q, err := NewProfile(p.Points, part(p.Phasors, im), part(res.PredictedPhasors, im), s.Point, s.Dir, ComponentACInPhase, max)
+	if err != nil {
+		return nil, err
+	}
+	pr.MeasuredQuadrature, pr.PredictedQuadrature = q.Measured, q.Predicted
+	return pr, nil
 }
 
 func centroid(pts [][3]float64) [3]float64 {

@@ -83,6 +83,11 @@ var csvCol = func() map[string]int {
 // GeoJSON leaves it out, rather than written as 0, which would read as
 // exact; cover_sigma_m is then empty too. So is rms_nt for a group whose
 // fit failed before estimating anything (too few readings).
+//
+// The text cells group, problem and left_out go through textCell: one
+// that starts with "=", "+", "-", "@", a tab or a carriage return (a group
+// named "=1+2" or "-T09") gets a leading apostrophe, so that a spreadsheet
+// shows it as text rather than running it as a formula.
 func WriteCSV(w io.Writer, d *Document) error {
 	if err := d.Validate(); err != nil {
 		return err
@@ -102,7 +107,7 @@ func WriteCSV(w io.Writer, d *Document) error {
 				set("chainage_m", fix(*g.Chainage, 3))
 				set("route_chainage_m", fix(*g.Chainage, 3))
 			}
-			set("group", g.Key)
+			set("group", textCell(g.Key))
 			set("source", src)
 			set("kind", kind)
 			set("east_m", fix(p[0], 3))
@@ -123,14 +128,14 @@ func WriteCSV(w io.Writer, d *Document) error {
 				set("dof", strconv.Itoa(g.DOF))
 			}
 			set("ok", strconv.FormatBool(g.OK))
-			set("problem", g.Problem)
+			set("problem", textCell(g.Problem))
 			return row
 		}
 		if len(g.Sources) == 0 {
 			row := base("", "", g.Centroid)
 			if st := d.stationOf(&g, 0, nil); st != nil {
 				row[csvCol["used"]] = strconv.FormatBool(st.Used)
-				row[csvCol["left_out"]] = leftOut(&g, st)
+				row[csvCol["left_out"]] = textCell(leftOut(&g, st))
 			}
 			if err := cw.Write(row); err != nil {
 				return fmt.Errorf("report: writing CSV: %w", err)
@@ -148,7 +153,7 @@ func WriteCSV(w io.Writer, d *Document) error {
 			}
 			if st := d.stationOf(&g, i, &s); st != nil {
 				set("used", strconv.FormatBool(st.Used))
-				set("left_out", leftOut(&g, st))
+				set("left_out", textCell(leftOut(&g, st)))
 			}
 			if p := g.Pair; p != nil && (i == p.Sources[0] || i == p.Sources[1]) {
 				// A line of an unresolved go-and-return pair: its current
@@ -225,6 +230,27 @@ func WriteCSV(w io.Writer, d *Document) error {
 		return fmt.Errorf("report: writing CSV: %w", err)
 	}
 	return nil
+}
+
+// textCell returns a text cell of a CSV file (a group's name, a message)
+// as a spreadsheet should show it: a cell starting with "=", "+", "-", "@",
+// a tab or a carriage return gets a leading apostrophe, so that a
+// spreadsheet opening the file shows the text as written instead of
+// reading it as a formula, as the OWASP guidance on CSV injection advises
+// (CWE-1236). Group names come straight from the survey log: a traverse
+// named "=1+2" showed as 3 and one named "-T09" as an error, and a name
+// such as "=HYPERLINK(...)" would run. A program reading the file strips
+// one leading apostrophe from such a cell to get the text back. Numeric
+// cells are not passed through it: "-0.508" is a number to a spreadsheet.
+func textCell(s string) string {
+	if s == "" {
+		return s
+	}
+	switch s[0] {
+	case '=', '+', '-', '@', '\t', '\r':
+		return "'" + s
+	}
+	return s
 }
 
 // isASCII reports whether b holds 7-bit ASCII only.

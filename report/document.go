@@ -436,6 +436,22 @@ type Profile struct {
 	// Measured and Predicted are the field [east, north, up], nT.
 	Measured  [][3]float64 `json:"measured_nt"`
 	Predicted [][3]float64 `json:"predicted_nt"`
+	// MeasuredQuadrature and PredictedQuadrature are, for
+	// ComponentACInPhase, the quadrature part of the same readings (the
+	// imaginary part of the turned phasor, nT), reading by reading as
+	// Measured; absent for DC and in documents written before they were
+	// added. Where the conductors differ in phase (three phases, a cable
+	// beside a lagging pipe) much of a misfit can lie in quadrature, which
+	// the in-phase part alone does not show.
+	MeasuredQuadrature  [][3]float64 `json:"measured_quadrature_nt,omitempty"`
+	PredictedQuadrature [][3]float64 `json:"predicted_quadrature_nt,omitempty"`
+}
+
+// hasQuadrature reports whether p holds the quadrature part of an AC
+// profile, reading by reading.
+func (p *Profile) hasQuadrature() bool {
+	n := len(p.Offset)
+	return p.Component == ComponentACInPhase && n > 0 && len(p.MeasuredQuadrature) == n && len(p.PredictedQuadrature) == n
 }
 
 // Route is the along-route profile built from the groups.
@@ -551,7 +567,9 @@ func (s *Station) estimated() bool {
 // station whose fit estimated nothing (estimated) has no current_a,
 // current_sigma_a, depth_m or depth_sigma_m, as results.csv leaves those
 // cells empty: 0 ± 0 would read as an exact measurement of no current at
-// no depth. ReadJSON reads the missing members as zero.
+// no depth. ReadJSON reads the missing members as zero. WriteJSON first
+// clears the numbers of every station left out because its group's fit
+// failed (withoutFailedEstimates), whatever sigmas that fit gave.
 func (s Station) MarshalJSON() ([]byte, error) {
 	type plain Station // Station's members without this method
 	if s.estimated() {

@@ -38,6 +38,11 @@ var findingsHeader = []string{
 // spreadsheets that otherwise guess a legacy code page show "±" and "°"
 // as written; CSV readers that do not skip it see it at the start of the
 // first header name.
+//
+// The text cells (groups, values, message) go through textCell: one that
+// starts with "=", "+", "-", "@", a tab or a carriage return (a group
+// named "=1+2") gets a leading apostrophe, so that a spreadsheet shows it
+// as text rather than running it as a formula.
 func WriteFindingsCSV(w io.Writer, d *Document) error {
 	if err := d.Validate(); err != nil {
 		return err
@@ -83,9 +88,9 @@ func WriteFindingsCSV(w io.Writer, d *Document) error {
 		}
 		row := []string{
 			f.Severity, f.Kind, conductor,
-			fix(f.ChainageFrom, 3), fix(f.ChainageTo, 3), strings.Join(f.Groups, " "),
+			fix(f.ChainageFrom, 3), fix(f.ChainageTo, 3), textCell(strings.Join(f.Groups, " ")),
 			fix(f.Position[0], 3), fix(f.Position[1], 3), fix(f.Position[2], 3), lon, lat,
-			strings.Join(vals, "; "), f.Message,
+			textCell(strings.Join(vals, "; ")), textCell(f.Message),
 		}
 		if err := cw.Write(row); err != nil {
 			return fmt.Errorf("report: writing findings CSV: %w", err)

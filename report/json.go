@@ -98,6 +98,48 @@ func (d *Document) normalized() *Document {
 			c.Groups[i].Sources = []Source{}
 		}
 	}
+	if d.Route != nil {
+		c.Route = d.withoutFailedEstimates(d.Route)
+	}
+	if len(d.Conductors) > 0 {
+		c.Conductors = make([]Track, len(d.Conductors))
+		copy(c.Conductors, d.Conductors)
+		for i := range c.Conductors {
+			c.Conductors[i].Route = *d.withoutFailedEstimates(&d.Conductors[i].Route)
+		}
+	}
+	return &c
+}
+
+// withoutFailedEstimates returns a copy of route r in which each station
+// left out (not Used) because its group's fit failed (Group.OK false: no
+// current found, or nothing fitted) has no current, phase, depth or cover,
+// so that results.json leaves them out (Station.MarshalJSON), as README
+// says of a failed fit's station and as route.geojson and results.csv
+// leave its unestimated sigmas out. The fit's meaningless numbers stay in
+// its group's sources, with their unidentifiable lists and the group's
+// problem to say so. A no-current-found fit has a current sigma but holds
+// its depth (sigma 0): written, the station read as a depth known exactly
+// (38.22 ± 0 m under the end of a conductor). A station left out as a
+// magnetised object (its group's fit sound) keeps its numbers.
+func (d *Document) withoutFailedEstimates(r *Route) *Route {
+	failed := map[string]bool{}
+	for i := range d.Groups {
+		if !d.Groups[i].OK {
+			failed[d.Groups[i].Key] = true
+		}
+	}
+	c := *r
+	c.Stations = make([]Station, len(r.Stations))
+	copy(c.Stations, r.Stations)
+	for i := range c.Stations {
+		s := &c.Stations[i]
+		if s.Used || !failed[s.Key] {
+			continue
+		}
+		s.Current, s.CurrentSigma, s.Depth, s.DepthSigma = 0, 0, 0, 0
+		s.Phase, s.PhaseSigma, s.Cover, s.CoverSigma = nil, nil, nil, nil
+	}
 	return &c
 }
 

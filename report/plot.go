@@ -348,6 +348,13 @@ func planPlot(d *Document, side vg.Length) (*plot.Plot, error) {
 	}
 	var shown bool
 	for _, g := range d.Groups {
+		if !g.OK {
+			// A failed fit (no current found, or nothing fitted): its
+			// lines' positions and directions mean nothing, and drawn
+			// as fitted conductors they showed a conductor where none
+			// was found. Its readings show where the group was.
+			continue
+		}
 		for _, src := range g.Sources {
 			if src.Kind == KindDipole {
 				if _, err := scatter(p, xy{[]float64{src.Point[0]}, []float64{src.Point[1]}}, draw.BoxGlyph{}, colInfo, 3.5); err != nil {
@@ -371,20 +378,34 @@ func planPlot(d *Document, side vg.Length) (*plot.Plot, error) {
 		}
 	}
 	if r := d.Route; r != nil && len(r.Stations) > 1 {
-		var rx, ry []float64
-		for _, st := range r.Stations {
-			rx, ry = append(rx, st.Point[0]), append(ry, st.Point[1])
-		}
-		l, err := polyline(p, xy{rx, ry}, colFit, 2.2)
-		if err != nil {
-			return nil, err
-		}
+		rp := planRoute(r)
 		name := "fitted route"
 		if len(d.Conductors) > 0 {
 			name = "fitted route, conductor 1"
 		}
-		p.Legend.Add(name, l)
-		if _, err := scatter(p, xy{rx, ry}, draw.CircleGlyph{}, colFit, 2.2); err != nil {
+		var named bool
+		for _, run := range rp.runs {
+			l, err := polyline(p, run, colFit, 2.2)
+			if err != nil {
+				return nil, err
+			}
+			if l != nil && !named {
+				p.Legend.Add(name, l)
+				named = true
+			}
+		}
+		var gapNamed bool
+		for _, gap := range rp.gaps {
+			l, err := polyline(p, gap, colFit, 1, 1.5, 2.5)
+			if err != nil {
+				return nil, err
+			}
+			if l != nil && !gapNamed {
+				p.Legend.Add("route past a station not used", l)
+				gapNamed = true
+			}
+		}
+		if _, err := scatter(p, rp.used, draw.CircleGlyph{}, colFit, 2.2); err != nil {
 			return nil, err
 		}
 	}
@@ -420,6 +441,48 @@ func planPlot(d *Document, side vg.Length) (*plot.Plot, error) {
 	}
 	squareUp(p)
 	return p, nil
+}
+
+// planRoutePath is how the plan view draws a route: runs of two or more
+// successive used stations (Station.Used) as the fitted route, the
+// stretches between used stations across stations not used as gaps (a
+// thin dotted line), and the used stations' points. A station not used
+// (a failed fit, no current found, an object) has no conductor point of
+// its own (a failed fit's is the centre of its readings), so the route is
+// broken there as route.geojson breaks it, and is drawn no further than
+// its first and last used stations: before, it ran on through the failed
+// fits past a conductor's end, and through every station of a survey
+// where nothing was found.
+type planRoutePath struct {
+	runs, gaps []xy
+	used       xy
+}
+
+func planRoute(r *Route) planRoutePath {
+	var out planRoutePath
+	var run xy
+	prev := -1 // the last used station
+	flush := func() {
+		if run.Len() > 1 {
+			out.runs = append(out.runs, run)
+		}
+		run = xy{}
+	}
+	for i, st := range r.Stations {
+		if !st.Used {
+			continue
+		}
+		if prev >= 0 && prev != i-1 {
+			flush()
+			a := r.Stations[prev].Point
+			out.gaps = append(out.gaps, xy{[]float64{a[0], st.Point[0]}, []float64{a[1], st.Point[1]}})
+		}
+		run.x, run.y = append(run.x, st.Point[0]), append(run.y, st.Point[1])
+		out.used.x, out.used.y = append(out.used.x, st.Point[0]), append(out.used.y, st.Point[1])
+		prev = i
+	}
+	flush()
+	return out
 }
 
 func minOf(x []float64) float64 {
@@ -1026,11 +1089,27 @@ func squareUp(p *plot.Plot) {
 // minimum cover's code (the caption's depth reference and the settings
 // give it) to stay within the plot's width.
 func alongPlot(d *Document, r *Route, conductor int, which string, narrow bool) (*plot.Plot, error) {
-	var x, y, e, ux, uy []float64
+	// A station left out because its group's fit failed (no current
+	// found, nothing fitted) has no value: results.json gives it none.
+	// Drawn at the fit's numbers it put a "not used" ring at 38 A and
+	// 38 m past a conductor's end, and stretched the axes to them; it is
+	// marked on the chainage axis instead. A station left out as a
+	// magnetised object keeps its ring at its value.
+	failed := map[string]bool{}
+	for i := range d.Groups {
+		if !d.Groups[i].OK {
+			failed[d.Groups[i].Key] = true
+		}
+	}
+	var x, y, e, ux, uy, fx []float64
 	for _, st := range r.Stations {
 		v, s := st.Current, st.CurrentSigma
 		if which == "depth" {
 			v, s = st.Depth, st.DepthSigma
+		}
+		if !st.Used && failed[st.Key] {
+			fx = append(fx, st.Chainage)
+			continue
 		}
 		if !st.Used {
 			ux, uy = append(ux, st.Chainage), append(uy, v)
@@ -1038,10 +1117,17 @@ func alongPlot(d *Document, r *Route, conductor int, which string, narrow bool) 
 		}
 		x, y, e = append(x, st.Chainage), append(y, v), append(e, 2*s)
 	}
-	title, ylabel := "Current along the route", "current (A)"
-	if d.Signal.Mode == SignalAC {
-		ylabel = "current, RMS (A)"
+	// A go-and-return pair's route carries the pair's net current (the
+	// current that does not return through it), not a core's: labelled
+	// "current", a pair of 10 A cores read as a cable carrying 1 A.
+	title, ylabel := "Current along the route", "current"
+	if r.PairNet {
+		title, ylabel = "Net current of the pair along the route", "net current"
 	}
+	if d.Signal.Mode == SignalAC {
+		ylabel += ", RMS"
+	}
+	ylabel += " (A)"
 	if which == "depth" {
 		title = "Depth along the route"
 		ylabel = "depth below " + depthRefShort(d) + " (m)"
@@ -1077,7 +1163,12 @@ func alongPlot(d *Document, r *Route, conductor int, which string, narrow bool) 
 		if err != nil {
 			return nil, err
 		}
-		p.Legend.Add("not used (poor fit or object)", s)
+		// A poor fit is used (drawn as an estimate); what is left out
+		// with a value is a magnetised object.
+		p.Legend.Add("not used (object)", s)
+	}
+	if len(fx) > 0 && !(p.Y.Min <= p.Y.Max) {
+		p.Y.Min, p.Y.Max = 0, 1 // no value to plot at all
 	}
 	x0, x1 := 0.0, r.Length
 	if which == "depth" {
@@ -1128,6 +1219,23 @@ func alongPlot(d *Document, r *Route, conductor int, which string, narrow bool) 
 				return nil, err
 			}
 		}
+	}
+	if len(fx) > 0 {
+		// On the chainage axis: the bottom of the plot, which is the
+		// greatest depth on the depth plot's inverted scale.
+		edge := p.Y.Min
+		if which == "depth" {
+			edge = p.Y.Max
+		}
+		fy := make([]float64, len(fx))
+		for i := range fy {
+			fy[i] = edge
+		}
+		s, err := scatter(p, xy{fx, fy}, draw.CrossGlyph{}, colInfo, 3.5)
+		if err != nil {
+			return nil, err
+		}
+		p.Legend.Add("fit failed, no value (on the axis)", s)
 	}
 	return p, nil
 }
@@ -1180,8 +1288,10 @@ func depthRefShort(d *Document) string {
 }
 
 // profilePlot plots a group's measured field against the fit across the
-// conductor.
-func profilePlot(d *Document, g *Group) (*plot.Plot, error) {
+// conductor: for AC the in-phase part, or with quadrature the quadrature
+// part (Profile.MeasuredQuadrature), each in its own figure and named so
+// in its title.
+func profilePlot(d *Document, g *Group, quadrature bool) (*plot.Plot, error) {
 	pr := g.Profile
 	title := "Group " + g.Key
 	if g.Key == "" {
@@ -1193,8 +1303,17 @@ func profilePlot(d *Document, g *Group) (*plot.Plot, error) {
 	// The uniform background (the Earth's field, for DC) dwarfs the
 	// conductor's field: plot both without it.
 	ylabel := "field less fitted background (nT)"
+	measured, predicted := pr.Measured, pr.Predicted
 	if pr.Component == ComponentACInPhase {
 		ylabel = "in-phase RMS field (nT)"
+		if pr.hasQuadrature() {
+			title += ": in-phase part"
+		}
+		if quadrature {
+			ylabel = "quadrature RMS field (nT)"
+			title = strings.TrimSuffix(title, ": in-phase part") + ": quadrature part"
+			measured, predicted = pr.MeasuredQuadrature, pr.PredictedQuadrature
+		}
 	}
 	bg := g.Background
 	if pr.Component == ComponentACInPhase {
@@ -1210,7 +1329,7 @@ func profilePlot(d *Document, g *Group) (*plot.Plot, error) {
 		m := make([]float64, len(pr.Offset))
 		f := make([]float64, len(pr.Offset))
 		for i := range pr.Offset {
-			m[i], f[i] = pr.Measured[i][a]-bg[a], pr.Predicted[i][a]-bg[a]
+			m[i], f[i] = measured[i][a]-bg[a], predicted[i][a]-bg[a]
 		}
 		s, err := scatter(p, xy{pr.Offset, m}, glyphs[a], cols[a], 1.8)
 		if err != nil {

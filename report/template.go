@@ -118,17 +118,17 @@ footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rul
 <section>
 <h2>Plan view</h2>
 <figure class="plan">{{.Plan}}
-<figcaption>Readings (grey), fitted conductor{{if .D.Route}} and route (blue){{end}}{{if .Tracks}}, further conductors followed along the route (dark grey, each with its own line pattern, named in the legend){{end}}{{if .Findings}}, findings numbered as in the summary (triangles coloured by severity){{end}}{{if .Current}}; groups named in grey beside their readings (every few where they crowd), and chainage 0 ringed, with an arrow along increasing chainage{{end}}. Coordinates: {{.FrameText}}.</figcaption>
+<figcaption>Readings (grey){{with .PlanShows}}{{if .Fits}}, fitted conductor{{if .Route}} and route{{end}} (blue){{if .Gap}}, the route dotted past a station whose fit is not used{{end}}{{end}}{{end}}{{if .Tracks}}, further conductors followed along the route (dark grey, each with its own line pattern, named in the legend){{end}}{{if .Findings}}, findings numbered as in the summary (triangles coloured by severity){{end}}{{if .Current}}; groups named in grey beside their readings (every few where they crowd){{if .PlanShows.Start}}, and chainage 0 ringed, with an arrow along increasing chainage{{end}}{{end}}.{{with .PlanShows}}{{if .Failed}} {{if .Fits}}No conductor is drawn at a group whose fit failed (no current found, or nothing fitted): its readings alone show where it was{{if .Route}}, and the route is drawn only between groups whose fits are used{{end}}.{{else}}No conductor is drawn: no group's fit found one.{{end}}{{end}}{{end}} Coordinates: {{.FrameText}}.</figcaption>
 </figure>
 </section>
 
 {{if .Current}}<section>
 <h2>Along the route</h2>
 <figure>{{.Current}}
-<figcaption>Fitted current per group with ± two standard deviations; dashed red lines mark steps in current (current leaving or joining the conductor) at their most likely chainage, shaded ± one standard deviation, or midway between the stations either side where a finding gives no such chainage. Current is signed along the route's direction of increasing chainage.</figcaption>
+<figcaption>{{if .D.Route.PairNet}}The go-and-return pair's fitted net current per group (the sum of its two cores' currents, the current that does not return through the pair; each core's own current is far larger, see the table of fits){{else}}Fitted current per group{{end}} with ± two standard deviations; groups the route does not use are grey, a magnetised object as a ring at its value, a failed fit (no current found), which has no value, as a cross on the chainage axis; dashed red lines mark steps in {{if .D.Route.PairNet}}net current (current leaving or joining the circuit){{else}}current (current leaving or joining the conductor){{end}} at their most likely chainage, shaded ± one standard deviation, or midway between the stations either side where a finding gives no such chainage. Current is signed along the route's direction of increasing chainage.</figcaption>
 </figure>
 <figure>{{.Depth}}
-<figcaption>Fitted depth per group with ± two standard deviations. Depth is {{.DepthRef}}.{{with .DepthNote}} {{.}}{{end}}</figcaption>
+<figcaption>Fitted depth per group with ± two standard deviations. Depth is {{.DepthRef}}.{{with .DepthNote}} {{.}}{{end}} Groups not used are grey, as above.</figcaption>
 </figure>
 </section>
 {{end}}
@@ -137,7 +137,7 @@ footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rul
 <h2>Conductor {{.Number}} along the route</h2>
 <p>{{.Lead}} Its findings are listed in the summary, marked “conductor {{.Number}}”. Chainage here is measured along conductor {{.Number}} from its first station.</p>
 <figure>{{.Current}}
-<figcaption>Fitted current of conductor {{.Number}} per group with ± two standard deviations; dashed red lines mark its steps in current at their most likely chainage, shaded ± one standard deviation, or midway between the stations either side where a finding gives no such chainage. Current is signed along the direction of increasing chainage.</figcaption>
+<figcaption>{{if .PairNet}}Fitted net current of conductor {{.Number}}, a go-and-return pair (the sum of its two cores' currents, the current that does not return through the pair),{{else}}Fitted current of conductor {{.Number}}{{end}} per group with ± two standard deviations; dashed red lines mark its steps in current at their most likely chainage, shaded ± one standard deviation, or midway between the stations either side where a finding gives no such chainage. Current is signed along the direction of increasing chainage.</figcaption>
 </figure>
 <figure>{{.Depth}}
 <figcaption>Fitted depth of conductor {{.Number}} per group with ± two standard deviations. Depth is {{$.DepthRef}}.{{with $.DepthNote}} {{.}}{{end}}</figcaption>
@@ -146,7 +146,7 @@ footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rul
 
 {{end}}{{if .Profiles}}<section>
 <h2>Measured and fitted field</h2>
-<p>For a few groups: the field measured (markers) and the field of the fitted model (lines), east, north and up components, across the conductor, both less the fitted uniform background. A good fit runs through the markers.</p>
+<p>For a few groups: the field measured (markers) and the field of the fitted model (lines), east, north and up components, across the conductor, both less the fitted uniform background.{{if .Quadrature}} For AC each group has two panels: the RMS field in phase with the strongest conductor's current, and in quadrature with it (a quarter cycle apart). A good fit runs through the markers in both: where the conductors differ in phase (the cores of a three-phase cable, a cable beside a lagging pipe) a fit can miss mostly in quadrature and still look good in phase.{{else}} A good fit runs through the markers.{{end}}</p>
 {{range .Profiles}}<figure>{{.}}</figure>
 {{end}}</section>
 {{end}}

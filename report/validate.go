@@ -47,6 +47,10 @@ func (d *Document) Validate() error {
 				return fmt.Errorf("report: groups[%d] (key %q).profile: %d positions, %d offsets, %d measured, %d predicted: lengths differ",
 					i, g.Key, n, len(p.Offset), len(p.Measured), len(p.Predicted))
 			}
+			if q, qp := len(p.MeasuredQuadrature), len(p.PredictedQuadrature); (q != 0 || qp != 0) && (q != n || qp != n) {
+				return fmt.Errorf("report: groups[%d] (key %q).profile: %d positions, %d measured and %d predicted quadrature: lengths differ",
+					i, g.Key, n, q, qp)
+			}
 		}
 	}
 	tracks := map[int]bool{}
