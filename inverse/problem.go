@@ -244,9 +244,11 @@ type Identifiable struct {
 type SourceEstimate struct {
 	// Kind is "line" or "dipole".
 	Kind string
-	// Point is the point on the line nearest the centroid of the readings (m ENU), or
-	// the dipole's position; Dir is the unit direction along which positive current
-	// flows, oriented so that the azimuth lies in [0, 180) (zero for a dipole).
+	// Point is the line's point whose horizontal position is nearest the centroid of
+	// the readings (the point nearest in space for a line dipping more than 60
+	// degrees), m ENU, or the dipole's position; Dir is the unit direction along which
+	// positive current flows, oriented so that the azimuth lies in [0, 180) (zero for
+	// a dipole).
 	Point, Dir [3]float64
 	// Moment of a dipole in A m^2 (east, north, up) with one-sigma uncertainties; for
 	// AC the magnitude per axis. Zero for lines.

@@ -27,6 +27,17 @@ type summary struct {
 	chi2       float64
 	zref       float64
 	refName    string
+	// under holds each line's point under the readings' centroid in plan, its
+	// depth and the depth's sigma (pointAlong), which report gives the Result in
+	// place of the lines' Point, Depth and DepthSigma.
+	under []underPoint
+}
+
+// underPoint is a line's point under the readings' centroid in plan (see
+// summary.under).
+type underPoint struct {
+	point             [3]float64
+	depth, depthSigma float64
 }
 
 // reorder sorts the candidate's lines by decreasing current magnitude so that results
@@ -188,6 +199,7 @@ func (su *summary) clone() *summary {
 		out.pairs[i].Notes = slices.Clone(out.pairs[i].Notes)
 	}
 	out.unresolved = slices.Clone(su.unresolved)
+	out.under = slices.Clone(su.under)
 	out.flip = slices.Clone(su.flip)
 	out.names = slices.Clone(su.names)
 	out.v = slices.Clone(su.v)
@@ -359,6 +371,8 @@ func (f *fitter) summariseAsIs(c *candidate) (*summary, error) {
 		e.Dir = dirOf(b[qAzimuth]*math.Pi/180, b[qDip]*math.Pi/180)
 		e.Current, e.CurrentSigma = b[qCurrent], sigmaOf(l*nq+qCurrent)
 		e.Depth, e.DepthSigma = b[qDepth], sigmaOf(l*nq+qDepth)
+		su.under = append(su.under, underPoint{point: [3]float64{b[qUnderE], b[qUnderN], b[qUnderU]},
+			depth: b[qUnderDepth], depthSigma: sigmaOf(l*nq + qUnderDepth)})
 		e.Offset, e.OffsetSigma = b[qOffset], sigmaOf(l*nq+qOffset)
 		e.Azimuth, e.Dip = b[qAzimuth], b[qDip]
 		geomUnres := unres[off] || unres[off+1]
@@ -557,6 +571,13 @@ const (
 	qCurrent
 	qPhase
 	qRelPhase
+	// The point of the line under the readings' centroid in plan and its depth
+	// (pointAlong): the reported point (Result.Sources); qPointE..qDepth, the point
+	// nearest the centroid in space, serve the fit's own tests (the guard, pairs).
+	qUnderE
+	qUnderN
+	qUnderU
+	qUnderDepth
 	nQuantities
 )
 
@@ -644,10 +665,13 @@ func deriveQuantities(sp *separable, sv *survey, zref float64, flip []bool, v []
 			az, dip = az+math.Pi, -dip
 		}
 		pt := add(ln.Point, scale(u, dot(sub(sv.centroid, ln.Point), u)))
+		under := add(ln.Point, scale(u, pointAlong(sub(sv.centroid, ln.Point), u)))
 		right := [3]float64{math.Cos(az), -math.Sin(az), 0}
 		o := out[l*nQuantities:]
 		o[qPointE], o[qPointN], o[qPointU] = pt[0], pt[1], pt[2]
 		o[qDepth] = zref - pt[2]
+		o[qUnderE], o[qUnderN], o[qUnderU] = under[0], under[1], under[2]
+		o[qUnderDepth] = zref - under[2]
 		o[qOffset] = dot(sub(pt, sv.centroid), right)
 		azd := math.Mod(az*180/math.Pi, 360)
 		if azd < 0 {
@@ -664,6 +688,47 @@ func deriveQuantities(sp *separable, sv *survey, zref float64, flip []bool, v []
 		}
 	}
 	return out
+}
+
+// underCentroid returns su's sources with each line's point, depth and depth sigma
+// taken at its point under the readings' centroid in plan (summary.under); a depth
+// whose sigma su gives as 0 (not identifiable) keeps 0.
+func underCentroid(su *summary) []SourceEstimate {
+	out := slices.Clone(su.lines)
+	for l := range min(len(su.under), len(out)) {
+		e, u := &out[l], su.under[l]
+		if e.Kind != "line" {
+			continue
+		}
+		e.Point, e.Depth = u.point, u.depth
+		if e.DepthSigma > 0 {
+			e.DepthSigma = u.depthSigma
+		}
+	}
+	return out
+}
+
+// pointAlong returns how far along unit direction u from a line's point lies the
+// line's reported point (SourceEstimate.Point), given d, the readings' centroid less
+// the line's point: the point whose horizontal position is nearest the centroid's, so
+// the line's point under the centroid in plan, where a traverse square to the line
+// crosses it. The point nearest the centroid in space, reported before (and still the
+// one the fit's guard and pairs measure lines by, so that what the fit accepts is as
+// before), lies up the dip
+// from there, (h + d) sin(dip) cos(dip) along the ground for a line h + d below the
+// readings' mean height: the depth was that of a point off the traverse (a pipe
+// dipping 26.6 degrees, 5 m under its traverse, read 3.9 m deep 2.1 m along the
+// route, its stations' chainage 20% short), and on ground sloping along the line,
+// where the sensors follow the ground, depth at that point less the sensor height at
+// the traverse made the cover short by (h + d) sin²(dip) (0.11 m, 135 sigma, under a
+// 30% slope). For a level line the two points are the same. A line steeper than 60
+// degrees keeps the point nearest in space: its point under the centroid lies far
+// down the line, where its depth's sigma grows as 1/cos(dip).
+func pointAlong(d, u [3]float64) float64 {
+	if h2 := u[0]*u[0] + u[1]*u[1]; h2 >= 0.25 {
+		return (d[0]*u[0] + d[1]*u[1]) / h2
+	}
+	return dot(d, u)
 }
 
 // paramNames names the parameters in the order of the covariance: geometry of each
@@ -764,7 +829,7 @@ func (f *fitter) report(c *candidate, scores []ModelScore) (*Result, error) {
 	}
 	sp := c.sp
 	r := &Result{
-		Sources: su.lines, Sigma: su.sigma, Chi2: su.chi2, DOF: su.dof,
+		Sources: underCentroid(su), Sigma: su.sigma, Chi2: su.chi2, DOF: su.dof,
 		Status: c.res.status, Iterations: c.iters, Starts: f.starts, Criteria: scores,
 		Covariance: su.cov, ParamNames: su.names, DepthReference: su.refName, ReferenceZ: su.zref,
 		SingleTraverse: f.sv.single, Pairs: su.pairs, Opposed: f.opposedOf(c, su),

@@ -185,7 +185,8 @@ func heldLine(ln Line, sv *survey, zref float64) heldEstimate {
 	if az >= math.Pi || az < 0 { // vertical or exactly south after rounding
 		az = math.Mod(az+2*math.Pi, math.Pi)
 	}
-	pt := add(ln.Point, scale(u, dot(sub(sv.centroid, ln.Point), u)))
+	// The line's point under the readings' centroid in plan, as FitLines reports it.
+	pt := add(ln.Point, scale(u, pointAlong(sub(sv.centroid, ln.Point), u)))
 	right := [3]float64{math.Cos(az), -math.Sin(az), 0}
 	e := SourceEstimate{
 		Kind: "line", Point: pt, Dir: u,

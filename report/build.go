@@ -220,8 +220,14 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 	}
 	var stations []route.Station
 	pairRoute := false // conductor 1 is a go-and-return pair (circuitOf)
+	// Build's own copy of the fits: the analyses below replace some of
+	// their results (leadByPosition, checkDipoles, markSplitSums).
+	fits = append([]Fit(nil), fits...)
 	analyse := func() (*route.Route, error) {
 		d.Groups = nil
+		// Conductor 1 by position where the currents do not pick it
+		// (lead.go).
+		leadByPosition(fits, ac)
 		stations = make([]route.Station, 0, len(fits))
 		pairRoute = followsPair(fits, ac)
 		for _, f := range fits {
@@ -247,7 +253,6 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 	}
 	// Groups the route finds anomalous may hold a magnetised object:
 	// refit them with a dipole (dipole.go) and analyse again.
-	fits = append([]Fit(nil), fits...)
 	if len(fits) > 1 && checkDipoles(fits, r) {
 		if r, err = analyse(); err != nil {
 			return nil, err

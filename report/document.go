@@ -374,8 +374,9 @@ const (
 type Source struct {
 	// Kind is KindLine or KindDipole.
 	Kind string `json:"kind"`
-	// Point is a point on the conductor, the one nearest the centroid of
-	// the readings (the dipole's position for KindDipole), m.
+	// Point is a point on the conductor, the one under the centroid of the
+	// readings in plan (inverse.SourceEstimate.Point; the dipole's position
+	// for KindDipole), m.
 	Point [3]float64 `json:"point_m"`
 	// Direction is the conductor's unit direction.
 	Direction [3]float64 `json:"direction"`

@@ -7,8 +7,8 @@ package route
 type Station struct {
 	// Key names the group ("T07", a sensor id, a time window).
 	Key string
-	// Point is a point on the fitted conductor, nearest the centroid of
-	// the group's readings. When the fit failed (OK false) it should hold
+	// Point is a point on the fitted conductor near the group's readings
+	// (inverse.SourceEstimate.Point: under their centroid in plan). When the fit failed (OK false) it should hold
 	// the centroid of the readings, so the station can still be placed.
 	Point [3]float64
 	// Dir is the conductor's direction. It need not be a unit vector; a
