@@ -942,7 +942,8 @@ func LeastCover(d *Document) string {
 // conductor's track follows (Source.Conductor 0) and that is not one of a
 // go-and-return pair's lines (those count as the pair: sidePairs), whose
 // current the readings determine and is at least weakCoverShare of its
-// group's strongest (a weaker one may be a model artefact, coverDoubt):
+// group's strongest (a weaker one may be a model artefact, coverDoubt),
+// and that is not weak and steep (route.WeakSteep, as LoneCover):
 // a service crossing the route seen at one or two traverses. The least
 // cover headline is over the conductors followed, and before it gave a
 // feeder's 0.93 m beside a crossing service at 0.35 m that was reported
@@ -964,6 +965,11 @@ func (d *Document) shallowLoneLine() (c coverAt, ok bool) {
 				continue
 			}
 			if hasString(s.Unidentifiable, "current") || hasString(s.Unidentifiable, "depth") || !(math.Abs(s.Current) >= weakCoverShare*main) {
+				continue
+			}
+			if route.WeakSteep(main, s.Current, s.Dip) {
+				// Reported as a possible artefact (a bend or a change of
+				// depth absorbed), and its cover not checked (LoneCover).
 				continue
 			}
 			cv, okC := d.cover(s.Depth)

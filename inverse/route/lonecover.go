@@ -21,7 +21,7 @@ func LoneCover(p *Placed, l Line, set *Settings, single bool) (Finding, bool) {
 	if set == nil || set.MinCover <= 0 || !p.usable() || !l.finite() {
 		return Finding{}, false
 	}
-	if main := math.Abs(p.Current); main > 0 && math.Abs(l.Current)/main < furtherWeak && l.dip() > furtherSteep {
+	if WeakSteep(p.Current, l.Current, l.dip()) {
 		return Finding{}, false // reported by weakSources
 	}
 	k := set.coverK()
