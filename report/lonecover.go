@@ -22,6 +22,45 @@ func (d *Document) addLoneCover(fits []Fit, r *route.Route, rs *route.Settings, 
 			}
 		}
 	}
+	// The lone lines, to tell which lie along one another (lineDistance,
+	// taken between the lines themselves whatever their angle to the
+	// route): the same conductor seen at too few groups to follow.
+	type lone struct {
+		station int
+		src     trackSource
+	}
+	var lones []lone
+	for k := range r.Stations {
+		p := &r.Stations[k]
+		if p.Dipole || p.Index < 0 || p.Index >= len(fits) || fits[p.Index].Result == nil {
+			continue
+		}
+		for j, s := range fits[p.Index].Result.Sources {
+			if j == 0 || s.Kind == KindDipole || !sound(&s) || tracked[key{p.Index, j}] || !s.Identifiable.Azimuth {
+				continue
+			}
+			lones = append(lones, lone{k, trackSource{fit: p.Index, source: j, steep: true, linePoint: s.Point, lineDir: s.Dir, lineDepth: s.Depth, azSigma: s.AzimuthSigma}})
+		}
+	}
+	inLine := func(k, fit, j int) []string {
+		var out []string
+		for a := range lones {
+			if lones[a].src.fit != fit || lones[a].src.source != j {
+				continue
+			}
+			for b := range lones {
+				if lones[b].station == k {
+					continue
+				}
+				if _, ok := lineDistance(&lones[a].src, &lones[b].src); ok {
+					if key := r.Stations[lones[b].station].Key; len(out) == 0 || out[len(out)-1] != key {
+						out = append(out, key)
+					}
+				}
+			}
+		}
+		return out
+	}
 	added := false
 	for k := range r.Stations {
 		p := &r.Stations[k]
@@ -32,7 +71,7 @@ func (d *Document) addLoneCover(fits []Fit, r *route.Route, rs *route.Settings, 
 			if j == 0 || s.Kind == KindDipole || !sound(&s) || tracked[key{p.Index, j}] {
 				continue
 			}
-			l := route.Line{Point: s.Point, Dir: s.Dir, Current: s.Current, CurrentSigma: s.CurrentSigma, Depth: s.Depth, DepthSigma: s.DepthSigma, AzimuthSigma: s.AzimuthSigma}
+			l := route.Line{Point: s.Point, Dir: s.Dir, Current: s.Current, CurrentSigma: s.CurrentSigma, Depth: s.Depth, DepthSigma: s.DepthSigma, AzimuthSigma: s.AzimuthSigma, InLineWith: inLine(k, p.Index, j)}
 			if f, ok := route.LoneCover(p, l, rs, len(r.Stations) == 1); ok {
 				nf := findingOf(f)
 				nf.Lone = true

@@ -86,6 +86,15 @@ func crossingOf(d *Document, t *Track) (trackCrossing, bool) {
 	}
 	var ps []placed
 	var depths []float64
+	// A track placed by its own points at every station (ownPointTrack,
+	// as tracks.go placed its stations) is placed so here too.
+	var cosines []float64
+	for _, s := range t.Route.Stations {
+		if m, ok := main[s.Key]; ok {
+			cosines = append(cosines, planCos(m.Direction, s.Direction))
+		}
+	}
+	own := !t.Route.PairNet && ownPointTrack(cosines)
 	for _, s := range t.Route.Stations {
 		m, ok := main[s.Key]
 		if !ok {
@@ -98,7 +107,7 @@ func crossingOf(d *Document, t *Track) (trackCrossing, bool) {
 		}
 		right := [2]float64{u[1], -u[0]}
 		q := [2]float64{s.Point[0], s.Point[1]}
-		if den := v[0]*u[0] + v[1]*u[1]; math.Abs(den) > 0.5 {
+		if den := v[0]*u[0] + v[1]*u[1]; math.Abs(den) > 0.5 && !own {
 			k := -((q[0]-m.Point[0])*u[0] + (q[1]-m.Point[1])*u[1]) / den
 			q = [2]float64{q[0] + k*v[0], q[1] + k*v[1]}
 		}

@@ -126,6 +126,14 @@ type trackSource struct {
 	// one-sigma uncertainty (0 when not known): see predict.
 	slope, slopeSigma float64
 	pair              *inverse.PairEstimate
+	// steep is true for a line whose fitted direction (determined by the
+	// readings) lies more than crossAngle in plan from the primary's:
+	// linePoint and lineDir are its fitted point (nearest the readings'
+	// centre), direction and depth there, and azSigma its azimuth sigma,
+	// degrees (see lineDistance).
+	steep              bool
+	linePoint, lineDir [3]float64
+	lineDepth, azSigma float64
 }
 
 // lines are the indices of the fit's sources that m stands for: its
@@ -213,6 +221,53 @@ func offsetSlope(u, right [2]float64, dir [3]float64, sigmaDeg float64) (slope, 
 	return slope, sigma
 }
 
+// lineDistance is how far steep line c lies from steep line a, the last
+// station of a track, taken as lines rather than by their offsets across
+// the primary conductor: the distance in plan from each one's fitted point
+// to the other's line (the larger of the two), with the difference of their
+// depths there, and whether c may join a's track by it. It is for lines
+// crossing conductor 1 at a wide angle (steep: more than crossAngle in
+// plan), whose offsets the one-station prediction (predict) may miss: a
+// line within 30 degrees of square to conductor 1 is placed by its own
+// point (crossOffset), whose offset moves by sin cos of the angle per metre
+// of chainage, not by the tangent predict assumes, and one near 60 degrees
+// is placed by its own point at one traverse and where it meets the cross
+// section at the next, metres apart. So the crossing service of
+// crossing-service.toml, 10 A at 0.35 m running at 60 degrees to the
+// feeder and fitted at 28-30 degrees of azimuth on four traverses, was
+// followed on none and reported four times as a lone line "too few groups
+// show it", with no crossing summarised (found in review). c may join when
+// their azimuths agree within max(10 degrees, 3 sigma) and the distance is
+// within the track gate widened, as predict's is, by the distance along a
+// between the two points times the azimuths' sigma (at most 10 degrees).
+func lineDistance(a, c *trackSource) (float64, bool) {
+	if !a.steep || !c.steep || a.pair != nil || c.pair != nil {
+		return 0, false
+	}
+	ua, okA := planUnit(a.lineDir)
+	uc, okC := planUnit(c.lineDir)
+	if !okA || !okC {
+		return 0, false
+	}
+	cos := math.Min(1, math.Abs(ua[0]*uc[0]+ua[1]*uc[1]))
+	dAz := math.Acos(cos) * 180 / math.Pi
+	sAz := math.Hypot(a.azSigma, c.azSigma)
+	if !finite(sAz) || dAz > math.Max(10, 3*sAz) {
+		return 0, false
+	}
+	dx := [2]float64{c.linePoint[0] - a.linePoint[0], c.linePoint[1] - a.linePoint[1]}
+	acrossA := math.Abs(dx[0]*ua[1] - dx[1]*ua[0])
+	acrossC := math.Abs(dx[0]*uc[1] - dx[1]*uc[0])
+	along := math.Abs(dx[0]*ua[0] + dx[1]*ua[1])
+	d := math.Hypot(math.Max(acrossA, acrossC), c.lineDepth-a.lineDepth)
+	sp := along * math.Min(sAz, 10) * math.Pi / 180
+	gate := math.Hypot(trackGate(c.lineDepth, a.lineDepth), 2*sp)
+	if !finite(d) || d > gate {
+		return 0, false
+	}
+	return d, true
+}
+
 // associate links the candidate sources of the groups, given in route
 // order, into tracks (see the rules above) and returns the tracks with at
 // least minStations stations, in the order they are numbered (2, 3, ...).
@@ -241,6 +296,8 @@ func associate(groups [][]trackSource, minStations int) [][]trackSource {
 				pred, sp := t.predict(c.chainage)
 				gate := math.Hypot(trackGate(c.depth, last.depth), 2*sp)
 				if d := math.Hypot(c.offset-pred, c.depth-last.depth); d <= gate {
+					pairs = append(pairs, pair{ti, ci, d})
+				} else if d, ok := lineDistance(&last, &c); ok {
 					pairs = append(pairs, pair{ti, ci, d})
 				}
 			}
@@ -376,15 +433,21 @@ func trackCandidates(fits []Fit, r *route.Route, pairRoute, ac bool) [][]trackSo
 				continue
 			}
 			var slope, slopeSigma float64
+			steep := false
 			if s.Identifiable.Azimuth {
 				// A held direction (a single traverse that did not
 				// determine it) says nothing: predicted flat.
 				slope, slopeSigma = offsetSlope(u, right, s.Dir, s.AzimuthSigma)
+				if v, ok := planUnit(s.Dir); ok {
+					steep = math.Abs(v[0]*u[0]+v[1]*u[1]) < math.Cos(crossAngle*math.Pi/180)
+				}
 			}
 			out[k] = append(out[k], trackSource{
 				fit: p.Index, source: j + 1, pos: k, chainage: p.Chainage,
 				offset: off, depth: depth, current: math.Abs(s.Current),
 				slope: slope, slopeSigma: slopeSigma,
+				steep: steep, linePoint: s.Point, lineDir: s.Dir,
+				lineDepth: s.Depth, azSigma: s.AzimuthSigma,
 			})
 		}
 	}
@@ -468,7 +531,11 @@ func soundPair(q *inverse.PairEstimate, ac bool) bool {
 // centre and direction, its net current with its phase (AC), and its
 // centre's depth, as conductor 1's station does when the route follows a
 // pair (buildGroup).
-func trackStation(f *Fit, m *trackSource, primary *route.Placed) route.Station {
+//
+// ownPoint places a line at its own fitted point whatever its angle to
+// the primary (ownPointTrack): the track's placement is then the same at
+// every station.
+func trackStation(f *Fit, m *trackSource, primary *route.Placed, ownPoint bool) route.Station {
 	if q := m.pair; q != nil {
 		st := primary.Station
 		st.Point, st.Dir = q.Point, q.Dir
@@ -485,7 +552,7 @@ func trackStation(f *Fit, m *trackSource, primary *route.Placed) route.Station {
 	st := primary.Station
 	st.Point, st.Dir = s.Point, s.Dir
 	st.Depth, st.DepthSigma = s.Depth, s.DepthSigma
-	if uh := math.Hypot(primary.Dir[0], primary.Dir[1]); uh > 0 {
+	if uh := math.Hypot(primary.Dir[0], primary.Dir[1]); uh > 0 && !ownPoint {
 		// The station lies where the line meets the primary's cross
 		// section (crossOffset), not at the fit's own point, the line's
 		// point nearest the readings' centre: for a line crossing the
@@ -524,6 +591,39 @@ func trackStation(f *Fit, m *trackSource, primary *route.Placed) route.Station {
 	return st
 }
 
+// planCos is |cos| of the angle in plan between directions a and b, or 1
+// when either is vertical or not a number.
+func planCos(a, b [3]float64) float64 {
+	u, okU := planUnit(a)
+	v, okV := planUnit(b)
+	if !okU || !okV {
+		return 1
+	}
+	return math.Abs(u[0]*v[0] + u[1]*v[1])
+}
+
+// ownPointTrack tells whether a track of lines whose directions make
+// angles in plan with conductor 1 of the given |cosines| (one per station)
+// is placed at every station by its own fitted point: when crossAt would
+// place some of them by their own point (within 30 degrees of square to
+// conductor 1) and others where they meet its cross section, and the
+// first are at least half. A line crossing conductor 1 at about 60 degrees
+// falls on either side of that rule from traverse to traverse, and the two
+// placements lie metres apart along it (7 m for the service of
+// crossing-service.toml at a traverse 26 m along the feeder): its stations
+// then went back and forth along the track, and the crossing's chainage
+// and length were wrong. A track placed mostly in the cross sections keeps
+// the per-station rule, as before.
+func ownPointTrack(cosines []float64) bool {
+	own := 0
+	for _, c := range cosines {
+		if !(c > 0.5) {
+			own++
+		}
+	}
+	return own > 0 && own < len(cosines) && 2*own >= len(cosines)
+}
+
 // builtTrack is one kept track with its route analysis.
 type builtTrack struct {
 	number  int
@@ -546,8 +646,15 @@ func buildTracks(fits []Fit, r *route.Route, rs *route.Settings, minStations int
 		n := i + 2
 		st := make([]route.Station, len(members))
 		off := make([]float64, len(members))
+		cosines := make([]float64, 0, len(members))
+		for _, m := range members {
+			if m.pair == nil {
+				cosines = append(cosines, planCos(r.Stations[m.pos].Dir, fits[m.fit].Result.Sources[m.source].Dir))
+			}
+		}
+		own := ownPointTrack(cosines)
 		for k, m := range members {
-			st[k] = trackStation(&fits[m.fit], &m, &r.Stations[m.pos])
+			st[k] = trackStation(&fits[m.fit], &m, &r.Stations[m.pos], own)
 			off[k] = m.offset
 		}
 		tr, err := route.Build(st, rs)

@@ -19,6 +19,15 @@ const furtherWeak = 0.25
 // strong one (a departure from one straight line) than a conductor.
 const furtherSteep = 45.0
 
+// WeakSteep tells whether a further line of current current (the sign
+// ignored) dipping dip degrees from horizontal, beside a station's
+// conductor of current main, is weak and steep: reported as a possible
+// artefact (weakSources), not checked as a conductor (LoneCover).
+func WeakSteep(main, current, dip float64) bool {
+	main = math.Abs(main)
+	return main > 0 && math.Abs(current)/main < furtherWeak && math.Abs(dip) > furtherSteep
+}
+
 // weakSources reports the further line sources (Station.Further) of usable
 // stations that are weak (under furtherWeak of the station's current) and
 // steep (dipping more than furtherSteep): they may be artefacts, or real

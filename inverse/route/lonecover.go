@@ -3,6 +3,7 @@ package route
 import (
 	"fmt"
 	"math"
+	"strings"
 )
 
 // LoneCover checks the cover of l, a further line source of the fit at
@@ -20,7 +21,7 @@ func LoneCover(p *Placed, l Line, set *Settings, single bool) (Finding, bool) {
 	if set == nil || set.MinCover <= 0 || !p.usable() || !l.finite() {
 		return Finding{}, false
 	}
-	if main := math.Abs(p.Current); main > 0 && math.Abs(l.Current)/main < furtherWeak && l.dip() > furtherSteep {
+	if WeakSteep(p.Current, l.Current, l.dip()) {
 		return Finding{}, false // reported by weakSources
 	}
 	k := set.coverK()
@@ -43,8 +44,22 @@ func LoneCover(p *Placed, l Line, set *Settings, single bool) (Finding, bool) {
 		// taken in [0, 180)).
 		azText = fmt.Sprintf("%.0f", math.Mod(math.Round(az), 180))
 	}
-	msg := fmt.Sprintf("a further line source in the fit at %s, %s A running at azimuth %s degrees, is not followed along the route (too few groups show it: a crossing service, or a conductor the other fits do not resolve); its cover, %s m, %s the %.2f m minimum (%s): confirm before digging here",
-		at(p, single), pm(math.Abs(l.Current), l.CurrentSigma), azText, pm(c, sc), verdict, math.Abs(set.MinCover), code)
+	why := "too few groups show it: a crossing service, or a conductor the other fits do not resolve"
+	if n := len(l.InLineWith); n > 0 {
+		// Two or more groups do show it, in line (found in review: the
+		// same service at four traverses was "too few groups" four times).
+		others := strings.Join(l.InLineWith, " and ")
+		if n > 2 {
+			others = strings.Join(l.InLineWith[:n-1], ", ") + " and " + l.InLineWith[n-1]
+		}
+		fits, show := "fits", "show"
+		if n == 1 {
+			fits, show = "fit", "shows"
+		}
+		why = fmt.Sprintf("the %s at %s %s a line along it too, but too few groups to follow it as a conductor: a crossing service, for example", fits, others, show)
+	}
+	msg := fmt.Sprintf("a further line source in the fit at %s, %s A running at azimuth %s degrees, is not followed along the route (%s); its cover, %s m, %s the %.2f m minimum (%s): confirm before digging here",
+		at(p, single), pm(math.Abs(l.Current), l.CurrentSigma), azText, why, pm(c, sc), verdict, math.Abs(set.MinCover), code)
 	return Finding{
 		Kind:     KindShallowCover,
 		Severity: sev,

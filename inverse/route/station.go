@@ -92,6 +92,10 @@ type Line struct {
 	// AzimuthSigma is the one-sigma uncertainty of its azimuth, degrees;
 	// 0 when the azimuth was held or is not known.
 	AzimuthSigma float64
+	// InLineWith names the other groups whose fits hold a further line
+	// that no track follows either and that lies along this one (the
+	// same conductor seen there: LoneCover says so); empty when none.
+	InLineWith []string
 }
 
 // Object is a magnetised object found beside the conductor: a point dipole
