@@ -81,9 +81,9 @@ func leadCandidates(f *Fit, ac bool) []int {
 	return out
 }
 
-// lineDistance is the distance in space from point p to the line through q
+// pointToLine is the distance in space from point p to the line through q
 // along unit direction u, m.
-func lineDistance(p, q, u [3]float64) float64 {
+func pointToLine(p, q, u [3]float64) float64 {
 	d := [3]float64{p[0] - q[0], p[1] - q[1], p[2] - q[2]}
 	t := d[0]*u[0] + d[1]*u[1] + d[2]*u[2]
 	return math.Sqrt(math.Max(d[0]*d[0]+d[1]*d[1]+d[2]*d[2]-t*t, 0))
@@ -156,7 +156,7 @@ func leadByPosition(fits []Fit, ac bool) {
 		res := fits[bi].Result
 		pick, near := 0, math.Inf(1)
 		for _, j := range cands[bi] {
-			if d := lineDistance(res.Sources[j].Point, ref.Point, ref.Dir); d < near {
+			if d := pointToLine(res.Sources[j].Point, ref.Point, ref.Dir); d < near {
 				pick, near = j, d
 			}
 		}
