@@ -77,7 +77,7 @@ type BuildSettings struct {
 	Noise float64
 	// MeasuredNoise is the noise of the fitted values measured apart from
 	// the fits, nT (for AC, the windows' own sine-fit residuals; for DC, the
-	// second differences of successive readings); 0 when not
+	// fourth differences of successive readings); 0 when not
 	// measured. With Noise 0 the yardstick for a poor fit is the median of
 	// the groups' own estimates, which a misfit most groups share raises to
 	// itself; MeasuredNoise lets Build warn of that (sharedMisfit).
@@ -295,12 +295,14 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 		}
 	}
 	markPoorGroups(d.Groups, r)
-	if w := sharedMisfit(fits, &bs, rs); w != "" {
-		d.Warnings = append([]string{w}, d.Warnings...)
+	shared := sharedMisfit(fits, &bs, rs)
+	if shared != "" {
+		d.Warnings = append([]string{shared}, d.Warnings...)
 	}
 	markLoneMisfits(d.Groups, fits, &bs, rs)
 	d.UncertaintyNote = SigmaNote
 	aloneFindings(fits, r)
+	caveatMisfitSteps(r, modelMisses(fits, &bs, rs, shared != "" || bs.Noise <= 0 && rs.MaxReducedChi2 < 0))
 	d.SetRoute(r)
 	if d.Route != nil {
 		d.Route.PairNet = pairRoute
@@ -332,7 +334,7 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 //
 // The share is the route's minor misfit (1%) for AC, whose windows measure
 // all the noise the phasors carry. For DC it is dcMisfitShare: the noise
-// measured from second differences of successive readings (see
+// measured from fourth differences of successive readings (see
 // cmd/undercurrent dcnoise.go) does not see slow wander, such as a
 // residual sensor offset turning with an 8° sway of the staff, which made
 // exact fits of a 1 A cable at 1.5 m miss by 2.3 times that noise and 5.5%

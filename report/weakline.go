@@ -97,15 +97,68 @@ func lineEvidence(f *Fit, res *inverse.Result, ac bool) (drop, limit float64, ok
 func noCurrentProblem(f *Fit, res *inverse.Result, s *inverse.SourceEstimate, ac bool) string {
 	head := fmt.Sprintf("no current found: the strongest line's current, %s A, is within %.3g sigma of zero", PlusMinus(s.Current, s.CurrentSigma), currentK(ac))
 	drop, limit, ok := lineEvidence(f, res, ac)
+	along := alongClause(f)
 	switch {
+	case !ok && along != "":
+		return head + " (too weak a signal to tell a conductor crossing this group's readings from none, or none crosses them), so its position and depth mean nothing" + along
 	case !ok:
 		return head + " (too weak a signal to tell a conductor from none, or no conductor under this group), so its position and depth mean nothing"
+	case drop <= limit && along != "":
+		return head + fmt.Sprintf(", and a line lowers chi-square by only %.3g from the background alone, which noise can (up to %.3g at %d readings): no conductor crossing this group's readings is detected, though one too deep or weak for them may cross there%s; its position and depth mean nothing",
+			math.Max(drop, 0), limit, len(f.Problem.Points), along)
 	case drop > limit:
 		return head + fmt.Sprintf(", but a line lowers chi-square by %.3g from the background alone, more than noise does (%.3g at %d readings): the readings hold a field, of a conductor under this group too deep or weak for them to fix its current, position and depth (which mean nothing here; longer traverses or a stronger current would), or of one nearby (past a conductor's end, or beside the traverse)",
 			drop, limit, len(f.Problem.Points))
 	}
 	return head + fmt.Sprintf(", and a line lowers chi-square by only %.3g from the background alone, which noise can (up to %.3g at %d readings): no conductor is detected under this group, though one too deep or weak for these readings may lie there; its position and depth mean nothing",
 		math.Max(drop, 0), limit, len(f.Problem.Points))
+}
+
+// alongRatio is the largest ratio of the spread of a group's readings across
+// their direction of travel to their spread along it (RMS about the mean, on
+// the ground) for which they are taken as one straight line of readings
+// (alongClause): a line walked with a sway of a tenth of its length.
+const alongRatio = 0.1
+
+// alongClause returns, when the group's readings lie along one straight
+// line on the ground (alongRatio), a clause saying that a conductor running
+// along that line cannot be seen from them; "" otherwise. The field of a
+// long straight conductor is the same at every point of a line parallel to
+// it, so readings walked along one see a constant, which the background
+// takes: seven lines walked along a 10 A cable 1 m down, one 0.3 m beside
+// it, each reported "no conductor is detected" (found in review).
+func alongClause(f *Fit) string {
+	if f == nil || f.Problem == nil || len(f.Problem.Points) < 3 {
+		return ""
+	}
+	pts := f.Problem.Points
+	var mx, my float64
+	for _, q := range pts {
+		mx += q[0]
+		my += q[1]
+	}
+	n := float64(len(pts))
+	mx, my = mx/n, my/n
+	var sxx, syy, sxy float64
+	for _, q := range pts {
+		dx, dy := q[0]-mx, q[1]-my
+		sxx += dx * dx
+		syy += dy * dy
+		sxy += dx * dy
+	}
+	// Eigenvalues of the 2x2 scatter matrix: the spreads along and across
+	// the line of readings.
+	tr, det := sxx+syy, sxx*syy-sxy*sxy
+	disc := math.Sqrt(math.Max(tr*tr/4-det, 0))
+	major, minor := tr/2+disc, math.Max(tr/2-disc, 0)
+	if !(major > 0) || math.Sqrt(minor/major) > alongRatio {
+		return ""
+	}
+	// The direction of travel, as a bearing east of north.
+	az := 0.5 * math.Atan2(2*sxy, sxx-syy) // from east, anticlockwise
+	bearing := math.Mod(90-az*180/math.Pi+360, 180)
+	return fmt.Sprintf("; a conductor running along this group's line of readings (bearing %.0f° or %.0f°) cannot be seen from it at all: its field is the same at every reading, and the background takes it, so walk traverses across it to find one",
+		bearing, bearing+180)
 }
 
 // nearSensorProblem returns why a group whose only source is a line within two

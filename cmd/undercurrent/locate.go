@@ -464,6 +464,10 @@ type survey struct {
 	// groupWarned is set when a log's group column drew the --group-by
 	// warning (then the span check is not needed).
 	groupWarned bool
+	// groupLines holds, for each log whose group column drew that
+	// warning, the warning and its groups' directions of travel, so that
+	// the warning can be reworded once the fit is known (alongGroups).
+	groupLines []groupLines
 	// geodetic says which logs have latitude and longitude columns (the
 	// logs --origin places), and originFrom is the log whose origin the
 	// document's frame took.
@@ -695,6 +699,7 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			if w := groupColumnWarning(path, groupColumnName(o), s); w != "" {
 				sv.alerts = append(sv.alerts, w)
 				sv.groupWarned = true
+				sv.groupLines = append(sv.groupLines, groupLines{warning: w, path: path, name: groupColumnName(o), dirs: groupDirections(s)})
 			}
 		}
 		if !o.despike {
@@ -1512,6 +1517,15 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 	}
 	head := *sv.doc
 	alerts := append([]string(nil), sv.alerts...)
+	for _, gl := range sv.groupLines {
+		if w := alongGroupsWarning(sv, gl); w != "" {
+			for i := range alerts {
+				if alerts[i] == gl.warning {
+					alerts[i] = w
+				}
+			}
+		}
+	}
 	if o.groupBy == "" && !sv.groupWarned {
 		if w := spanWarning(sv); w != "" {
 			alerts = append(alerts, w)
@@ -1556,7 +1570,7 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 			MinStep:      minStepFraction(o.minStep),
 			Noise:        sv.fitNoise(o.noise),
 			// AC windows measure their own noise, and DC readings
-			// theirs from second differences (dcnoise.go): the
+			// theirs from fourth differences (dcnoise.go): the
 			// yardstick for a misfit every group shares when --noise
 			// is not given.
 			MeasuredNoise: medianOf(sv.windowSigma) + dcMeasuredNoise(sv),

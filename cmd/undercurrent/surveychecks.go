@@ -128,6 +128,104 @@ func groupColumnWarning(path, name string, s *ingest.Samples) string {
 		path, name, len(order), values, name)
 }
 
+// groupLines is a log whose group column drew groupColumnWarning: the
+// warning, and the directions of travel of its groups (groupDirections).
+type groupLines struct {
+	warning, path, name string
+	dirs                [][2]float64
+}
+
+// straightRatio is the largest ratio of the spread of a group's readings
+// across their direction of travel to their spread along it (RMS about the
+// mean, on the ground) for which the group is taken as one straight line
+// of readings.
+const straightRatio = 0.1
+
+// groupDirections returns the direction of travel (a horizontal unit
+// vector, east and north) of each group of s whose readings lie along one
+// straight line (straightRatio), or nil when any group with readings that
+// move does not.
+func groupDirections(s *ingest.Samples) [][2]float64 {
+	if s.Group == nil || s.X == nil {
+		return nil
+	}
+	type sums struct{ n, x, y, xx, yy, xy float64 }
+	by := map[string]*sums{}
+	var order []string
+	for i, g := range s.Group {
+		if g == "" || math.IsNaN(s.X[i]) || math.IsNaN(s.Y[i]) {
+			continue
+		}
+		e := by[g]
+		if e == nil {
+			e = &sums{}
+			by[g] = e
+			order = append(order, g)
+		}
+		x, y := s.X[i], s.Y[i]
+		e.n++
+		e.x += x
+		e.y += y
+		e.xx += x * x
+		e.yy += y * y
+		e.xy += x * y
+	}
+	var dirs [][2]float64
+	for _, g := range order {
+		e := by[g]
+		mx, my := e.x/e.n, e.y/e.n
+		sxx, syy, sxy := e.xx/e.n-mx*mx, e.yy/e.n-my*my, e.xy/e.n-mx*my
+		tr, det := sxx+syy, sxx*syy-sxy*sxy
+		disc := math.Sqrt(math.Max(tr*tr/4-det, 0))
+		major, minor := tr/2+disc, math.Max(tr/2-disc, 0)
+		if !(major > 1e-4) {
+			continue // a fixed sensor: no direction of travel
+		}
+		if math.Sqrt(minor/major) > straightRatio {
+			return nil
+		}
+		a := 0.5 * math.Atan2(2*sxy, sxx-syy)
+		dirs = append(dirs, [2]float64{math.Cos(a), math.Sin(a)})
+	}
+	return dirs
+}
+
+// alongAngle is the largest angle, degrees, between a group's direction of
+// travel and the one line fitted to every reading for which the group is
+// taken as walked along that line.
+const alongAngle = 15
+
+// alongGroupsWarning returns the warning that replaces gl's when the run's
+// one fit (of every reading, no --group-by) is a line that every group of
+// the log runs along (within alongAngle): fitted one by one, such groups
+// see nothing of it (the field of a long straight conductor is the same at
+// every point of a line parallel to it, and the background takes it), so
+// --group-by is no cure; "" otherwise. Seven lines walked along a 10 A
+// cable, told to use --group-by, each then read "no conductor is detected"
+// (found in review).
+func alongGroupsWarning(sv *survey, gl groupLines) string {
+	if len(sv.groups) != 1 || len(gl.dirs) < 2 {
+		return ""
+	}
+	res := sv.groups[0].res
+	if res == nil || len(res.Sources) == 0 || res.Sources[0].Kind != "line" {
+		return ""
+	}
+	d := res.Sources[0].Dir
+	h := math.Hypot(d[0], d[1])
+	if !(h > 0) {
+		return ""
+	}
+	cosMin := math.Cos(alongAngle * math.Pi / 180)
+	for _, g := range gl.dirs {
+		if math.Abs(g[0]*d[0]+g[1]*d[1])/h < cosMin {
+			return ""
+		}
+	}
+	return fmt.Sprintf("%s: the log has a group column %q with %d groups, each a line of readings running along the one conductor fitted to every reading (within %d°): fitted one by one (--group-by %s) they would see nothing of it, since its field is the same at every reading of a line parallel to it; the fit here is of every reading as one straight conductor with one current, which a route that bends, changes depth or loses current does not fit: walk traverses across the conductor to follow it",
+		gl.path, gl.name, len(gl.dirs), alongAngle, gl.name)
+}
+
 // spanRatio is how many times its distance below the sensors a fitted line
 // may run along the readings before a fit without --group-by is
 // suspect: a traverse across a conductor reaches a few times the depth to

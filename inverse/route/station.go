@@ -39,7 +39,7 @@ type Station struct {
 	// noise but small against the signal is reported as information.
 	Signal float64
 	// Noise is the reading noise per component measured apart from the
-	// fit, nT (for DC readings, from the second differences of successive
+	// fit, nT (for DC readings, from the fourth differences of successive
 	// readings); zero when not measured. With SigmasPerMisfit it tells a
 	// fit the model misses from one the noise explains, however the
 	// route's other fits do (see strain.go).

@@ -22,10 +22,10 @@ import (
 // and they set the level of a false 0.84 A fall downstream.
 //
 // Station.Noise, the noise measured apart from the fit (for DC readings
-// from second differences of successive readings), gives each fit its own
+// from fourth differences of successive readings), gives each fit its own
 // yardstick: its misfit ratio RMS / Noise. The route's reference ratio is
 // the lower quartile of the usable stations' ratios, and at least 1: slow
-// wander of a carried sensor, which second differences do not see, makes
+// wander of a carried sensor, which the differences do not see, makes
 // every fit miss by a few times the measured noise, and the quartile takes
 // that as the norm, while it stays at the sound fits' ratio when up to
 // three quarters of the stations share a misfit. A station whose ratio
