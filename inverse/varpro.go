@@ -140,10 +140,16 @@ func newSeparable(pts [][3]float64, y []float64, nrhs int, bg BackgroundModel, o
 func newSeparableIn(scr *scratch, pts [][3]float64, y []float64, nrhs int, bg BackgroundModel, org [3]float64, geom []lineGeom, dips []dipGeom) *separable {
 	m := 3 * len(pts)
 	sp := scr.separable()
-	*sp = separable{pts: pts, m: m, nrhs: nrhs, y: y, bg: bg, org: org, geom: geom, dips: dips}
+	// A lent separable keeps its LM wrapper and its column layout's memory (see
+	// scratch.separable).
+	*sp = separable{pts: pts, m: m, nrhs: nrhs, y: y, bg: bg, org: org, geom: geom, dips: dips, lmp: sp.lmp, pos: sp.pos}
 	sp.q = len(geom) + 3*len(dips) + bg.columns()
 	// Layout of a: lines, dipoles, gradient terms; the uniform background is implicit.
-	sp.pos = make([]int, sp.q)
+	if cap(sp.pos) >= sp.q {
+		sp.pos = sp.pos[:sp.q]
+	} else {
+		sp.pos = make([]int, sp.q)
+	}
 	bc := sp.bgCol()
 	for c := range sp.pos {
 		switch {
