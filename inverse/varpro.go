@@ -455,21 +455,7 @@ func (sp *separable) project(v []float64) [3]float64 {
 			s2 += t[2]
 		}
 		s0, s1, s2 = s0/sp.bn2[0], s1/sp.bn2[1], s2/sp.bn2[2]
-		t = v
-		for len(t) >= 6 {
-			t[0] -= s0
-			t[1] -= s1
-			t[2] -= s2
-			t[3] -= s0
-			t[4] -= s1
-			t[5] -= s2
-			t = t[6:]
-		}
-		if len(t) >= 3 {
-			t[0] -= s0
-			t[1] -= s1
-			t[2] -= s2
-		}
+		sub3(v, s0, s1, s2)
 		return [3]float64{s0, s1, s2}
 	}
 	w = w[:3*n]
