@@ -80,11 +80,13 @@ func TestGaussNewtonStepMatchesSVD(t *testing.T) {
 // step is computed, not which. The line fits of the benchmark surveys, a stacked
 // go-and-return pair (DC and AC), a pair beside a cable and Huber reweighting
 // (simulated truth) reach the same answers with it and without it (every step through
-// the SVD) to 1e-8 relative: rounding moves a converged fit only within its
-// convergence tolerance. The NIST StRD problems (Misra1a, MGH09, both certified starts)
-// agree to 1e-6, the digits TestLMNIST asks of the certified values: MGH09's minimum
-// lies in a flat valley where the two stop 2e-7 apart (the shortcut's nearer the
-// certified values).
+// the SVD) to 1e-6 relative: rounding moves a converged fit only within its
+// convergence tolerance (the benchmark fits agree to 1e-9; the stacked pair, whose
+// lines slide along a flat valley, stops 3e-7 apart with the portable kernels, the
+// noasm build). The NIST StRD problems (Misra1a, MGH09, both certified starts) agree to
+// 1e-6 too, the digits TestLMNIST asks of the certified values: MGH09's minimum lies in
+// a flat valley where the two stop 2e-7 apart (the shortcut's nearer the certified
+// values).
 func TestGaussNewtonShortcutSameFits(t *testing.T) {
 	defer func() { lmNoShortcut = false }()
 	for _, c := range nistCases() {
@@ -153,7 +155,7 @@ func TestGaussNewtonShortcutSameFits(t *testing.T) {
 			}
 			close := func(what string, a, b float64) {
 				t.Helper()
-				if math.Abs(a-b) > 1e-8*math.Max(math.Abs(b), 1e-3) {
+				if math.Abs(a-b) > 1e-6*math.Max(math.Abs(b), 1e-3) {
 					t.Errorf("%s: %.12g with the shortcut, %.12g without", what, a, b)
 				}
 			}
