@@ -121,8 +121,14 @@
 // Springer LNM 630, 105-116, 1978): at each iteration the column-scaled Jacobian
 // J D^-1 is factored by QR (never J^T J); the step p minimises ||J p + r|| subject to
 // ||D p|| <= Delta, found on the small triangular factor through its singular value
-// decomposition and a safeguarded Newton iteration for the Levenberg parameter. The
-// radius grows or shrinks with the ratio of actual to predicted reduction. Simple bounds
+// decomposition and a safeguarded Newton iteration for the Levenberg parameter. When
+// the factor R is well conditioned (||R||_F ||R^-1||_F, a bound on its condition
+// number, four orders of magnitude below the level at which the SVD would drop a
+// singular value) and the Gauss-Newton step R^-1 Q^T r lies within the region, that
+// step is taken by back substitution and the SVD is not formed: the same step in exact
+// arithmetic, for n^3/6 flops (R^-1, for the bound) instead of the Jacobi sweeps'
+// several n^3. The radius grows or shrinks with the ratio of actual to predicted
+// reduction. Simple bounds
 // are kept by freezing components on a bound whose gradient points outwards and
 // projecting trial points. The engine reproduces the NIST StRD certified values for
 // Misra1a and MGH09 from both certified starts. Result.Status says why it stopped. Line

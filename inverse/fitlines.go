@@ -1122,18 +1122,29 @@ func (f *fitter) bestOf(starts []start, quick bool) (*candidate, error) {
 		rss float64
 		st  start
 	}
-	rs := make([]ranked, 0, len(starts))
+	var rsBuf [16]ranked // on the stack for up to 16 starts
+	rs := rsBuf[:0]
 	var firstErr error
 	// The starts are screened one after another with one set of work buffers (handed on
 	// from start to start); the few that are polished evaluate again with their own.
 	var prev *separable
 	var r []float64
 	sub := f.sv.screening()
+	var own []lineGeom // the screening separables' geometry, one allocation for all
+	if sub != f.sv {
+		n := 0
+		for _, st := range starts {
+			n += len(st.lines)
+		}
+		own = make([]lineGeom, 0, n)
+	}
 	for _, st := range starts {
 		geom, dips := st.lines, st.dips
 		if sub != f.sv {
 			// The full-data separable of a polished start gets its own geometry.
-			geom, dips = append([]lineGeom(nil), geom...), append([]dipGeom(nil), dips...)
+			k := len(own)
+			own = append(own, geom...)
+			geom, dips = own[k:len(own):len(own)], append([]dipGeom(nil), dips...)
 		}
 		for i := range geom {
 			// Whether a bound held a line back is found for the fit that

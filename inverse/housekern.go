@@ -68,6 +68,23 @@ func scaleVec(alpha float64, x []float64) {
 	floats.Scale(alpha, x)
 }
 
+// sub3 subtracts s0, s1 and s2 from the elements of v in turn: v[3i] -= s0, v[3i+1] -=
+// s1, v[3i+2] -= s2 (len(v) a multiple of 3; the uniform background out of a column,
+// separable.project). Where the AVX2 loop is in use it takes four readings a step, the
+// same subtractions.
+func sub3(v []float64, s0, s1, s2 float64) {
+	if n := len(v) / 12 * 12; n > 0 && useAVX2 {
+		sub3AVX2(v[:n], s0, s1, s2)
+		v = v[n:]
+	}
+	for len(v) >= 3 {
+		v[0] -= s0
+		v[1] -= s1
+		v[2] -= s2
+		v = v[3:]
+	}
+}
+
 // axpySelfDot does floats.AddScaled(c[:n], a, v), n = len(v), and returns the squared
 // norm of the updated c[1:n] as floats.Dot(c[1:n], c[1:n]) sums it, in one pass.
 func axpySelfDot(v []float64, a float64, c []float64) float64 {

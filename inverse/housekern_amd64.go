@@ -53,3 +53,6 @@ func axpyDotScaled2AVX2(v, w []float64, ws, a0, a1 float64, c0, c1 []float64) (d
 
 //go:noescape
 func axpyDotScaled4AVX2(v, w []float64, ws, a0, a1, a2, a3 float64, c0, c1, c2, c3 []float64) (d0, d1, d2, d3 float64)
+
+//go:noescape
+func sub3AVX2(v []float64, s0, s1, s2 float64)

@@ -1365,3 +1365,40 @@ g4end:
 	VMOVSD     X0, d3+208(FP)
 	VZEROUPPER
 	RET
+
+// func sub3AVX2(v []float64, s0, s1, s2 float64)
+// v[3i] -= s0, v[3i+1] -= s1, v[3i+2] -= s2 for len(v) a multiple of 12: four readings
+// (three registers) a step, each element's subtraction as the portable loop does it.
+TEXT ·sub3AVX2(SB), NOSPLIT, $0-48
+	VMOVSD      s0+24(FP), X3
+	VMOVSD      s1+32(FP), X4
+	VMOVSD      s2+40(FP), X5
+	VUNPCKLPD   X4, X3, X6         // s0 s1
+	VUNPCKLPD   X3, X5, X7         // s2 s0
+	VUNPCKLPD   X5, X4, X8         // s1 s2
+	VINSERTF128 $1, X7, Y6, Y0     // s0 s1 s2 s0
+	VINSERTF128 $1, X6, Y8, Y1     // s1 s2 s0 s1
+	VINSERTF128 $1, X8, Y7, Y2     // s2 s0 s1 s2
+	MOVQ        v_base+0(FP), R8
+	MOVQ        v_len+8(FP), DI
+	XORQ        SI, SI
+	SUBQ        $12, DI
+	JL          s3end
+
+s3loop:
+	VMOVUPD 0(R8)(SI*8), Y3
+	VMOVUPD 32(R8)(SI*8), Y4
+	VMOVUPD 64(R8)(SI*8), Y5
+	VSUBPD  Y0, Y3, Y3
+	VSUBPD  Y1, Y4, Y4
+	VSUBPD  Y2, Y5, Y5
+	VMOVUPD Y3, 0(R8)(SI*8)
+	VMOVUPD Y4, 32(R8)(SI*8)
+	VMOVUPD Y5, 64(R8)(SI*8)
+	ADDQ    $12, SI
+	SUBQ    $12, DI
+	JGE     s3loop
+
+s3end:
+	VZEROUPPER
+	RET

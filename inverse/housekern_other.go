@@ -79,3 +79,7 @@ func axpyDotScaled4AVX2(v, w []float64, ws, a0, a1, a2, a3 float64, c0, c1, c2, 
 	noAVX2()
 	return
 }
+
+func sub3AVX2(v []float64, s0, s1, s2 float64) {
+	noAVX2()
+}

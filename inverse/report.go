@@ -48,17 +48,18 @@ func (f *fitter) reorder(c *candidate) error {
 		return err
 	}
 	nl, nr := len(sp.geom), sp.nrhs
-	mag := make([]float64, nl)
+	var magBuf [8]float64 // on the stack for up to 8 lines
+	var idxBuf [8]int
+	mag, idx := magBuf[:0], idxBuf[:0]
 	for l := range nl {
+		var m float64
 		for k := range nr {
-			mag[l] += sp.coef[l*nr+k] * sp.coef[l*nr+k]
+			m += sp.coef[l*nr+k] * sp.coef[l*nr+k]
 		}
+		mag = append(mag, m)
+		idx = append(idx, l)
 	}
-	idx := make([]int, nl)
-	for i := range idx {
-		idx[i] = i
-	}
-	sort.SliceStable(idx, func(a, b int) bool { return mag[idx[a]] > mag[idx[b]] })
+	byDecreasing(idx, mag)
 	same := true
 	for i, j := range idx {
 		same = same && i == j
@@ -67,6 +68,17 @@ func (f *fitter) reorder(c *candidate) error {
 		return nil
 	}
 	return c.permute(idx)
+}
+
+// byDecreasing sorts the indices idx by decreasing mag[idx[i]], keeping the order of
+// equal ones: the permutation sort.SliceStable gives (by insertion, as it sorts up to
+// 20 elements), without its allocations.
+func byDecreasing(idx []int, mag []float64) {
+	for i := 1; i < len(idx); i++ {
+		for j := i; j > 0 && mag[idx[j]] > mag[idx[j-1]]; j-- {
+			idx[j], idx[j-1] = idx[j-1], idx[j]
+		}
+	}
 }
 
 // summarise computes the covariance from the full Jacobian at the solution and the
@@ -93,6 +105,20 @@ func (f *fitter) summarise(c *candidate) (*summary, error) {
 	}
 	c.memo = &summaryMemo{x: slices.Clone(c.x), sp: c.sp, w: c.sp.w, noPairs: c.noPairs, splitting: f.splitting, su: su.clone()}
 	return su, nil
+}
+
+// summariseFinal is summarise for a fit's last use, its report: the memo's summary is
+// handed over rather than copied, and a summary made afresh is not kept.
+func (f *fitter) summariseFinal(c *candidate) (*summary, error) {
+	if m := c.memo; m != nil && !summaryMemoOff && m.holds(f, c) {
+		if err := c.sp.evaluate(c.x); err != nil {
+			return nil, err
+		}
+		c.memo = nil
+		return m.su, nil
+	}
+	c.memo = nil
+	return f.summariseOrdered(c)
 }
 
 // summariseOrdered is summarise without the memo.
@@ -326,7 +352,9 @@ func (f *fitter) summariseAsIs(c *candidate) (*summary, error) {
 		flip[l] = a >= math.Pi
 	}
 	// One set of work buffers for the repeated evaluations of the derived quantities.
-	dw := &deriveWork{geom: make([]lineGeom, nl), cur: make([]complex128, nl)}
+	var dgeom [8]lineGeom // on the stack for up to 8 lines
+	var dcur [8]complex128
+	dw := &deriveWork{geom: dgeom[:0], cur: dcur[:0]}
 	nqAll := nl * nQuantities
 	qbuf := sp.scr.zeros(3*nqAll + nqAll*len(su.v) + len(su.v))
 	base, up, dn := qbuf[:nqAll], qbuf[nqAll:2*nqAll], qbuf[2*nqAll:3*nqAll]
@@ -389,9 +417,9 @@ func (f *fitter) summariseAsIs(c *candidate) (*summary, error) {
 			}
 			j++
 		} else if f.sv.single && f.set.Azimuth == nil {
-			e.Notes = append(e.Notes, fmt.Sprintf("azimuth not determined by this traverse: held perpendicular to it (%.1f deg)", e.Azimuth))
+			e.Notes = append(e.Notes, "azimuth not determined by this traverse: held perpendicular to it ("+deg1(e.Azimuth)+" deg)")
 		} else {
-			e.Notes = append(e.Notes, fmt.Sprintf("azimuth held at %.1f deg", e.Azimuth))
+			e.Notes = append(e.Notes, "azimuth held at "+deg1(e.Azimuth)+" deg")
 		}
 		if !g.holdDip {
 			e.DipSigma = sigmaOf(l*nq + qDip)
@@ -402,7 +430,7 @@ func (f *fitter) summariseAsIs(c *candidate) (*summary, error) {
 		} else if f.sv.single && f.set.Dip == nil {
 			e.Notes = append(e.Notes, "dip not determined by this traverse: held horizontal")
 		} else {
-			e.Notes = append(e.Notes, fmt.Sprintf("dip held at %.1f deg", e.Dip))
+			e.Notes = append(e.Notes, "dip held at "+deg1(e.Dip)+" deg")
 		}
 		for kk := range nr {
 			if unres[np+kk*q+l] {
@@ -531,6 +559,9 @@ func (f *fitter) summariseAsIs(c *candidate) (*summary, error) {
 	}
 	return su, nil
 }
+
+// deg1 formats v as fmt's %.1f does (the notes' held angles), without fmt's cost.
+func deg1(v float64) string { return strconv.FormatFloat(v, 'f', 1, 64) }
 
 // AboveSensorsNote is the note (SourceEstimate.Notes) of a line that passes above the
 // sensors where its depth is reported (a steeply dipping line rising through the
@@ -818,12 +849,13 @@ func sourceName(k, i, p int) string {
 	return [2]string{"line", "dipole"}[k] + strconv.Itoa(i+1) + "." + sourceSuffix[k][p]
 }
 
-// report builds the Result of the chosen candidate.
+// report builds the Result of the chosen candidate; it is the candidate's last use
+// (summariseFinal).
 func (f *fitter) report(c *candidate, scores []ModelScore) (*Result, error) {
 	if c == nil {
 		return nil, errors.New("inverse: no acceptable fit")
 	}
-	su, err := f.summarise(c)
+	su, err := f.summariseFinal(c)
 	if err != nil {
 		return nil, err
 	}

@@ -26,7 +26,9 @@ type scratch struct {
 	nsep int
 }
 
-// separable lends a zeroed separable (a new one when s is nil).
+// separable lends a zeroed separable (a new one when s is nil), but for two things it
+// keeps from its last loan: its LM wrapper (lmp) and the memory of its column layout
+// (pos, length zero), which newSeparableIn reuses.
 func (s *scratch) separable() *separable {
 	if s == nil {
 		return new(separable)
@@ -36,7 +38,7 @@ func (s *scratch) separable() *separable {
 	}
 	sp := s.seps[s.nsep]
 	s.nsep++
-	*sp = separable{lmp: sp.lmp}
+	*sp = separable{lmp: sp.lmp, pos: sp.pos[:0]}
 	return sp
 }
 
@@ -102,7 +104,7 @@ func (s *scratch) release() {
 		if p := sp.lmp; p != nil {
 			p.lower, p.upper, p.work = nil, nil, nil
 		}
-		*sp = separable{lmp: sp.lmp}
+		*sp = separable{lmp: sp.lmp, pos: sp.pos[:0]}
 	}
 	s.nsep = 0
 	s.free = append(s.free, s.used...)

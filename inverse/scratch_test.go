@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"math/cmplx"
 	"math/rand/v2"
+	"path/filepath"
+	"slices"
 	"testing"
 
 	"gonum.org/v1/gonum/mat"
@@ -74,5 +76,51 @@ func TestResultsOwnTheirMemory(t *testing.T) {
 		if got := snapshot(k.res); got != k.snap {
 			t.Errorf("result %d changed after later fits", i)
 		}
+	}
+}
+
+// TestLentSeparableKeepsItsWrapper: a separable lent again by a scratch keeps its LM
+// wrapper (whose method values are bound to it) and the memory of its column layout,
+// so that lending it and wrapping it for the LM engine allocates nothing (the wrapper
+// had been dropped by newSeparableIn on every loan, four allocations per start
+// polished), and the wrapper still evaluates the separable it is lent as.
+func TestLentSeparableKeepsItsWrapper(t *testing.T) {
+	c := benchCases[0]
+	p, err := readBenchSurvey(filepath.Join("testdata", c.file))
+	if err != nil {
+		t.Fatal(err)
+	}
+	scr := new(scratch)
+	sv := newSurveyIn(p, scr)
+	geom := []lineGeom{sv.geomFrom(seed{e: 0.2, az: 0, z: -1}, true, true, 0, 0)}
+	lend := func() (*separable, *lmProblem) {
+		sp := newSeparableIn(scr, sv.pts, sv.y, sv.nrhs, BackgroundUniform, sv.centroid, geom, nil)
+		sp.scr = scr
+		lmp, _ := sp.problem()
+		return sp, lmp
+	}
+	sp1, lmp1 := lend()
+	scr.release()
+	sp2, lmp2 := lend()
+	if sp1 != sp2 || lmp1 != lmp2 {
+		t.Fatalf("the separable lent again has wrapper %p, was %p (separable %p, was %p)", lmp2, lmp1, sp2, sp1)
+	}
+	// The wrapper evaluates the separable it was lent as: its residual is the one
+	// the separable gives.
+	x, _, _ := sp2.pack()
+	r1, r2 := make([]float64, sp2.residLen()), make([]float64, sp2.residLen())
+	if err := lmp2.resid(x, r1); err != nil {
+		t.Fatal(err)
+	}
+	sp2.ok = false
+	if err := sp2.resid(x, r2); err != nil {
+		t.Fatal(err)
+	}
+	if !slices.Equal(r1, r2) {
+		t.Error("the kept wrapper's residual differs from the separable's")
+	}
+	scr.release()
+	if n := testing.AllocsPerRun(20, func() { lend(); scr.release() }); n != 0 {
+		t.Errorf("lending a separable and wrapping it allocates %g times, want 0", n)
 	}
 }

@@ -140,10 +140,16 @@ func newSeparable(pts [][3]float64, y []float64, nrhs int, bg BackgroundModel, o
 func newSeparableIn(scr *scratch, pts [][3]float64, y []float64, nrhs int, bg BackgroundModel, org [3]float64, geom []lineGeom, dips []dipGeom) *separable {
 	m := 3 * len(pts)
 	sp := scr.separable()
-	*sp = separable{pts: pts, m: m, nrhs: nrhs, y: y, bg: bg, org: org, geom: geom, dips: dips}
+	// A lent separable keeps its LM wrapper and its column layout's memory (see
+	// scratch.separable).
+	*sp = separable{pts: pts, m: m, nrhs: nrhs, y: y, bg: bg, org: org, geom: geom, dips: dips, lmp: sp.lmp, pos: sp.pos}
 	sp.q = len(geom) + 3*len(dips) + bg.columns()
 	// Layout of a: lines, dipoles, gradient terms; the uniform background is implicit.
-	sp.pos = make([]int, sp.q)
+	if cap(sp.pos) >= sp.q {
+		sp.pos = sp.pos[:sp.q]
+	} else {
+		sp.pos = make([]int, sp.q)
+	}
 	bc := sp.bgCol()
 	for c := range sp.pos {
 		switch {
@@ -449,21 +455,7 @@ func (sp *separable) project(v []float64) [3]float64 {
 			s2 += t[2]
 		}
 		s0, s1, s2 = s0/sp.bn2[0], s1/sp.bn2[1], s2/sp.bn2[2]
-		t = v
-		for len(t) >= 6 {
-			t[0] -= s0
-			t[1] -= s1
-			t[2] -= s2
-			t[3] -= s0
-			t[4] -= s1
-			t[5] -= s2
-			t = t[6:]
-		}
-		if len(t) >= 3 {
-			t[0] -= s0
-			t[1] -= s1
-			t[2] -= s2
-		}
+		sub3(v, s0, s1, s2)
 		return [3]float64{s0, s1, s2}
 	}
 	w = w[:3*n]
