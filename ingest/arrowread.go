@@ -361,12 +361,18 @@ func (r *arrowReader) convert(rec arrow.RecordBatch) (arrow.RecordBatch, error) 
 			cols[i] = rec.Column(pl.src[c])
 		}
 		for i, c := range pl.out {
-			if c == cGroup || r.cfg.allowMissing {
+			if c == cGroup {
 				continue
 			}
+			// An infinite value is refused in every mode, as the slow path
+			// (floats) and the CSV reader do; only a NaN may pass, as a
+			// missing value, when missing values are allowed.
 			for row, v := range cols[i].(*array.Float64).Float64Values() {
 				if v-v != 0 { // NaN or infinite
 					if v != v {
+						if r.cfg.allowMissing {
+							continue
+						}
 						return nil, rowErr(r.name, r.batch, row, pl.header[pl.src[c]], "NaN", "NaN value; missing values are not allowed by default")
 					}
 					return nil, rowErr(r.name, r.batch, row, pl.header[pl.src[c]], strconv.FormatFloat(v, 'g', -1, 64), "value is infinite")
