@@ -809,6 +809,9 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch, plain bool) 
 				rb.group = append(rb.group, string(t))
 				continue
 			}
+			// Blanks inside quotes around a number are blanks as outside
+			// them (and as the Arrow text path trims them): " 150 " is 150.
+			t = bytes.Trim(t, " \t")
 			var v float64
 			var ok bool
 			if r.decComma {
