@@ -48,7 +48,7 @@ var fieldUnits = ingest.FieldUnits
 
 func (f *readFlags) add(fs *pflag.FlagSet) {
 	fs.StringSliceVar(&f.columns, "column", nil, "map canonical columns to the file's names: `CANON=NAME`, e.g. bx=Bx_uT,time=t_s,group=traverse (repeatable; a name holding a comma is given as it is, --column 'bx=Field X, nT': a part after a comma without = continues the name)")
-	fs.StringSliceVar(&f.units, "unit", nil, "units of columns: `CANON=UNIT`, e.g. bx=uT,time=ms (field "+fieldUnits+", or V/mV/uV/nV for induction coils with locate --coil; length m/cm/mm/km/ft; time s/ms/us/ns, or UTC for timestamps without a zone that are UTC; repeatable)")
+	fs.StringSliceVar(&f.units, "unit", nil, "units of columns: `CANON=UNIT`, e.g. bx=uT,time=ms (field "+fieldUnits+", each also with the size of a count before it for logs in counts, as bx=0.1nT or bx=100pT, or V/mV/uV/nV for induction coils with locate --coil; length m/cm/mm/km/ft; time s/ms/us/ns, or UTC for timestamps without a zone that are UTC; repeatable)")
 	fs.StringSliceVar(&f.columnsOld, "columns", nil, "same as --column")
 	fs.StringSliceVar(&f.unitsOld, "units", nil, "same as --unit")
 	_ = fs.MarkHidden("columns")
