@@ -33,6 +33,11 @@ func TestFieldUnitCountStep(t *testing.T) {
 		t.Fatal(err)
 	}
 	check("names", s, [3]float64{0.1, 0.1, 0.1})
+	// A count of a step whose inverse is whole is divided by it, so that
+	// it reads as the decimal written in nT reads (correctly rounded).
+	if s.By[0] != 18859.1 || s.Bx[1] != 120.6 {
+		t.Errorf("by %v bx %v, want 18859.1 and 120.6 exactly as parsed", s.By[0], s.Bx[1])
+	}
 
 	text = "time,bx,by,bz\n0,1205,188591,-462140\n1,1206,188592,-462144\n"
 	p := writeFile(t, "kestrel-moor-counts.csv", text)

@@ -2,6 +2,7 @@ package ingest
 
 import (
 	"fmt"
+	"math"
 	"slices"
 	"strings"
 )
@@ -61,7 +62,7 @@ func fieldUnitScale(s string) (float64, bool) {
 		if !ok || !(k > 0) || !finite(k) {
 			return 0, false
 		}
-		return k * f, true
+		return scaled(k, f), true
 	}
 	return 0, false
 }
@@ -218,6 +219,14 @@ func scaled(v, s float64) float64 {
 		return v / 1e6
 	case 1e-9:
 		return v / 1e9
+	}
+	if s < 1 {
+		// The same for other steps below the unit whose inverse is a
+		// whole number (a count of 0.1 nT, 100 pT = 0.1 nT): 188591
+		// counts of 0.1 nT read as 18859.1, not 18859.100000000002.
+		if inv := 1 / s; inv == math.Trunc(inv) && 1/inv == s {
+			return v / inv
+		}
 	}
 	return v * s
 }
