@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"os"
 	"regexp"
 	"sort"
 	"strconv"
@@ -449,7 +450,9 @@ func checkFieldUnits(ctx context.Context, path string, bx, by, bz []float64, opt
 		return "", nil
 	}
 	w := ""
-	if in, err := inspectCtx(ctx, path, opts...); err == nil {
+	if isPipe(path) {
+		// A pipe is read once: the generic wording below.
+	} else if in, err := inspectCtx(ctx, path, opts...); err == nil {
 		for _, s := range in.Warnings {
 			if strings.HasPrefix(s, "field:") {
 				// Without inspect's "field: " label.
@@ -591,4 +594,35 @@ func checkPositionsRead(path string, s *ingest.Samples) error {
 	m := strings.Join(missing, " and ")
 	return fmt.Errorf("%s has no column for %s: every reading would be read at %s = 0, and the fits and the route would be those of positions that are not the readings'; give the position column with --column %s=NAME (see \"undercurrent inspect %s\" for its columns), or, if every reading really lies at %s = 0, write that column into the log",
 		path, m, missing[0], missing[0], path, missing[0])
+}
+
+// isPipe reports whether path names a pipe or a socket (a named pipe,
+// /dev/stdin fed by a pipe): input that can be read only once, from its
+// start. A path that cannot be looked up is none.
+func isPipe(path string) bool {
+	st, err := os.Stat(path)
+	return err == nil && st.Mode()&(os.ModeNamedPipe|os.ModeSocket) != 0
+}
+
+// pipeReaders are the commands that read each input log once, from its
+// start, and so may read it from a pipe.
+var pipeReaders = map[string]bool{"inspect": true, "convert": true}
+
+// checkPipes refuses a pipe among the inputs of a command that reads its
+// logs more than once (a look at the columns first, then the readings).
+func checkPipes(name string, inputs map[string]bool) error {
+	if pipeReaders[name] {
+		return nil
+	}
+	var pipes []string
+	for p := range inputs {
+		if isPipe(p) {
+			pipes = append(pipes, p)
+		}
+	}
+	if len(pipes) == 0 {
+		return nil
+	}
+	sort.Strings(pipes)
+	return fmt.Errorf("%s: a pipe, which can be read only once; %s reads a log more than once, so it needs a regular file: save the log to a file first (undercurrent convert %s log.arrows; inspect and convert read pipes)", strings.Join(pipes, ", "), name, pipes[0])
 }

@@ -342,6 +342,11 @@ func inspectOrder(ctx context.Context, path string, opts []ingest.Option, order 
 	if in.NoTime || in.Rows == 0 || ts.Backwards == 0 && (order != ingest.TimeOrderedPerGroup || ts.Repeated == 0) {
 		return nil
 	}
+	if isPipe(path) {
+		// A pipe is read once: its steps stay counted in file order.
+		in.Warnings = append(in.Warnings, "time: the log is read from a pipe, once, so its gaps and steps back are counted in file order, not in time order; inspect a saved copy for the counts in time order")
+		return nil
+	}
 	times, groups, err := readTimes(ctx, path, opts)
 	if err != nil {
 		return err
