@@ -141,13 +141,12 @@ func rowsIn(rows int64, batches int) string {
 // Arrow IPC stream that stops short.
 const unterminatedHint = "to read the rows before the cut, allow an unterminated stream (on the command line --allow-unterminated)"
 
-func newArrowStreamReader(name string, f *os.File, cfg *config) (_ Reader, err error) {
+// newArrowStreamReader reads an Arrow IPC stream from rd, which f (closed
+// by Release) underlies; regular tells whether f is a regular file (not a
+// pipe).
+func newArrowStreamReader(name string, rd io.Reader, f *os.File, regular bool, cfg *config) (_ Reader, err error) {
 	defer recoverCorrupt(name, "Arrow IPC stream", &err)
-	src := &eofReader{r: f}
-	regular := false
-	if st, err := f.Stat(); err == nil && st.Mode().IsRegular() {
-		regular = true
-	}
+	src := &eofReader{r: rd}
 	sr, err := ipc.NewReader(src, ipc.WithAllocator(cfg.mem))
 	if err != nil {
 		if src.eof && (errors.Is(err, io.ErrUnexpectedEOF) || errors.Is(err, io.EOF)) {
@@ -361,12 +360,18 @@ func (r *arrowReader) convert(rec arrow.RecordBatch) (arrow.RecordBatch, error) 
 			cols[i] = rec.Column(pl.src[c])
 		}
 		for i, c := range pl.out {
-			if c == cGroup || r.cfg.allowMissing {
+			if c == cGroup {
 				continue
 			}
+			// An infinite value is refused in every mode, as the slow path
+			// (floats) and the CSV reader do; only a NaN may pass, as a
+			// missing value, when missing values are allowed.
 			for row, v := range cols[i].(*array.Float64).Float64Values() {
 				if v-v != 0 { // NaN or infinite
 					if v != v {
+						if r.cfg.allowMissing {
+							continue
+						}
 						return nil, rowErr(r.name, r.batch, row, pl.header[pl.src[c]], "NaN", "NaN value; missing values are not allowed by default")
 					}
 					return nil, rowErr(r.name, r.batch, row, pl.header[pl.src[c]], strconv.FormatFloat(v, 'g', -1, 64), "value is infinite")

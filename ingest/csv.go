@@ -57,6 +57,9 @@ type csvReader struct {
 	// split dropped (0: none); written by split, read after it ends.
 	nulAt   int
 	nulLine int // first line of NUL bytes alone skipped by the parsers
+	// cutWarn says that split left out a last line cut short (see
+	// cutLastLine); written by split, read after it ends.
+	cutWarn string
 	cur     arrow.RecordBatch
 	err     error
 	last    float64
@@ -809,6 +812,9 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch, plain bool) 
 				rb.group = append(rb.group, string(t))
 				continue
 			}
+			// Blanks inside quotes around a number are blanks as outside
+			// them (and as the Arrow text path trims them): " 150 " is 150.
+			t = bytes.Trim(t, " \t")
 			var v float64
 			var ok bool
 			if r.decComma {
@@ -998,6 +1004,7 @@ func (r *csvReader) split(carry []byte, line int) {
 		case <-r.done:
 		}
 	}
+	var tail []byte // the end of the last chunk sent, for cutLastLine
 	for {
 		n := size
 		if len(carry) >= n {
@@ -1013,8 +1020,15 @@ func (r *csvReader) split(carry []byte, line int) {
 			return
 		}
 		if eof {
-			if len(data) > 0 {
-				send(csvJob{data: data, line: line, lines: bytes.Count(data, []byte{'\n'})})
+			keep, cerr, warn := r.cutLastLine(data, line, tail)
+			if keep > 0 {
+				if !send(csvJob{data: data[:keep], line: line, lines: bytes.Count(data[:keep], []byte{'\n'})}) {
+					return
+				}
+			}
+			r.cutWarn = warn
+			if cerr != nil {
+				fail(cerr)
 			}
 			return
 		}
@@ -1045,6 +1059,7 @@ func (r *csvReader) split(carry []byte, line int) {
 			continue
 		}
 		carry = append(carry[:0], data[cut+1:]...)
+		tail = append(tail[:0], data[max(0, cut+1-cutTailBytes):cut+1]...)
 		lines := bytes.Count(data[:cut+1], []byte{'\n'})
 		if !send(csvJob{data: data[:cut+1], line: line, lines: lines, plain: plain}) {
 			return
@@ -1146,6 +1161,9 @@ func (r *csvReader) Next() bool {
 			at := r.nulLine
 			if r.nulAt > 0 && (at == 0 || r.nulAt < at) {
 				at = r.nulAt
+			}
+			if r.cutWarn != "" {
+				r.pl.warn("%s", r.cutWarn)
 			}
 			if at > 0 {
 				r.pl.warn("%s:%d: lines of nothing but NUL bytes skipped, the first here: the unwritten end of a logger's preallocated file, or a damaged stretch of the file (rows may be missing there)", r.name, at)

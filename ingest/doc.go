@@ -51,7 +51,9 @@
 // # Conversions
 //
 // Field units: 1 uT = 1e3 nT, 1 mT = 1e6 nT, 1 G = 1e5 nT, 1 T = 1e9 nT
-// (SI; the gauss is 1e-4 T). Input given as north-east-down (the geophysical
+// (SI; the gauss is 1e-4 T); a unit with a positive step before it, as
+// loggers writing counts state it ("Bx [0.1 nT]", "100pT", "1e-10T"), is
+// that many of the unit. Input given as north-east-down (the geophysical
 // X, Y, Z convention) is turned into east-north-up by
 //
 //	(e, n, u) = (y, x, -z)

@@ -53,13 +53,13 @@ func TestMappedFieldNameWordsAndUnitNames(t *testing.T) {
 }
 
 // Names whose suffix looks like a unit that is not read are refused, not
-// read as nT: a number with a unit, a field unit with a prefix or case the
+// read as nT: a field unit with a prefix or case the
 // readers do not take, a unit with words after it, or one of another
 // quantity (mV, ft).
 func TestMappedFieldNameUnitLikeRefused(t *testing.T) {
 	for _, c := range []struct{ name, unit string }{
-		{"Bx [0.1 nT]", `"0.1 nT"`}, {"Bx (10 G)", `"10 G"`}, {"Bx (1e-4T)", `"1e-4T"`}, {"Bx (T x10)", `"T x10"`},
-		{"Bx (fT)", `"fT"`}, {"Bx [NT/10]", `"NT/10"`}, {"Bx (kilogauss)", `"kilogauss"`}, {"Bx_0.1nT", `"0.1nT"`},
+		{"Bx (T x10)", `"T x10"`}, {"Bx (0.1 fT)", `"0.1 fT"`}, {"Bx (-0.1 nT)", `"-0.1 nT"`}, {"Bx [0 nT]", `"0 nT"`},
+		{"Bx (fT)", `"fT"`}, {"Bx [NT/10]", `"NT/10"`}, {"Bx (kilogauss)", `"kilogauss"`}, {"Bx_0x1nT", `"0x1nT"`},
 		{"Bx (uT, filtered)", `"uT, filtered"`}, {"Bx_uT (filtered)", `"uT (filtered)"`}, {"Bx_nT_x10", `"nT_x10"`},
 		{"Bx (mV)", `"mV"`}, {"Bx (V)", `"V"`}, {"Bx [ft]", `"ft"`},
 	} {

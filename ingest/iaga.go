@@ -538,7 +538,7 @@ func (r *iagaReader) parseRow(ln []byte, rb *rawBatch, hasF bool) error {
 	var v [4]float64
 	for i := 0; i < 4; i++ {
 		x, err := strconv.ParseFloat(string(f[3+i]), 64)
-		if err != nil || math.IsInf(x, 0) || x != x {
+		if err != nil || !decimalText(f[3+i]) || math.IsInf(x, 0) {
 			return lineErr(r.name, r.line, r.pl.header[1+i], string(f[3+i]), "%s is not a number", quoteText(string(f[3+i])))
 		}
 		if x >= iagaNotRecorded || r.nul[i] {

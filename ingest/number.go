@@ -15,12 +15,16 @@ var pow10 = [...]float64{1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10,
 // integer mantissa and the power of ten are both exact in float64, so one
 // multiplication or division rounds correctly (Clinger, PLDI 1990). Anything
 // else goes to strconv.ParseFloat, so the result is always the correctly
-// rounded value and shortest-form output round-trips.
+// rounded value and shortest-form output round-trips. Only plain decimals
+// (and the spellings of infinity and NaN, which the callers refuse or take
+// as missing) reach strconv.ParseFloat: it also takes Go's literal syntax,
+// digit separators ("1_50" as 150) and hexadecimal mantissas ("0x1p4" as
+// 16), which no logger writes and which in a log are corruption.
 func parseNumber(b []byte) (float64, bool) {
 	if v, ok := parseFast(b); ok {
 		return v, true
 	}
-	if len(b) == 0 {
+	if len(b) == 0 || !(decimalText(b) || infNaNText(b)) {
 		return 0, false
 	}
 	v, err := strconv.ParseFloat(string(b), 64)
@@ -31,6 +35,56 @@ func parseNumber(b []byte) (float64, bool) {
 		return 0, false
 	}
 	return v, true
+}
+
+// decimalText reports whether b is a plain decimal number:
+// [sign] digits [. [digits]] or [sign] . digits, then an optional
+// exponent e or E, [sign], digits.
+func decimalText(b []byte) bool {
+	i, n := 0, len(b)
+	if i < n && (b[i] == '-' || b[i] == '+') {
+		i++
+	}
+	nd := 0
+	for i < n && b[i]-'0' < 10 {
+		i, nd = i+1, nd+1
+	}
+	if i < n && b[i] == '.' {
+		i++
+		for i < n && b[i]-'0' < 10 {
+			i, nd = i+1, nd+1
+		}
+	}
+	if nd == 0 {
+		return false
+	}
+	if i < n && (b[i] == 'e' || b[i] == 'E') {
+		i++
+		if i < n && (b[i] == '-' || b[i] == '+') {
+			i++
+		}
+		es := i
+		for i < n && b[i]-'0' < 10 {
+			i++
+		}
+		if i == es {
+			return false
+		}
+	}
+	return i == n
+}
+
+// infNaNText reports whether b is a spelling of infinity or NaN that
+// strconv.ParseFloat reads: [sign] inf, infinity or nan, in any case.
+func infNaNText(b []byte) bool {
+	if len(b) > 0 && (b[0] == '-' || b[0] == '+') {
+		b = b[1:]
+	}
+	switch string(bytes.ToLower(b)) {
+	case "inf", "infinity", "nan":
+		return true
+	}
+	return false
 }
 
 func parseFast(b []byte) (float64, bool) {

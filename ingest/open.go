@@ -1,6 +1,7 @@
 package ingest
 
 import (
+	"bufio"
 	"bytes"
 	"errors"
 	"io"
@@ -91,6 +92,9 @@ func Open(path string, opts ...Option) (Reader, error) {
 		return nil, cfg.err
 	}
 	if cfg.originMode == originMean {
+		if st, err := os.Stat(path); err == nil && !st.Mode().IsRegular() {
+			return nil, fileErr(path, nil, "the mean position as origin takes two passes over the log, so it must be a regular file, not a pipe: save it to a file first, or give the origin")
+		}
 		o, err := meanOrigin(path, cfg)
 		if err != nil {
 			return nil, err
@@ -107,33 +111,58 @@ func open(path string, cfg *config) (Reader, error) {
 	if err != nil {
 		return nil, fileErr(path, nil, "cannot open: %v", unwrapPath(err))
 	}
-	head := make([]byte, 4096)
-	n, err := io.ReadFull(f, head)
-	if err != nil && err != io.ErrUnexpectedEOF && err != io.EOF {
+	// The format is told from the first bytes, peeked through a buffer,
+	// not read and sought back, so that a pipe (a named pipe, /dev/stdin)
+	// is read as well as a file: CSV, IAGA-2002 and Arrow IPC streams are
+	// read in one pass. Arrow IPC files and Parquet are read from their
+	// footer, at the end, so they must be regular files.
+	st, err := f.Stat()
+	if err != nil {
 		f.Close()
 		return nil, fileErr(path, nil, "cannot read: %v", unwrapPath(err))
 	}
-	head = head[:n]
-	if n == 0 {
+	regular := st.Mode().IsRegular()
+	br := bufio.NewReaderSize(f, 64<<10)
+	head, err := br.Peek(4096)
+	if err != nil && err != io.EOF && err != bufio.ErrBufferFull {
+		f.Close()
+		return nil, fileErr(path, nil, "cannot read: %v", unwrapPath(err))
+	}
+	if len(head) == 0 {
 		f.Close()
 		return nil, fileErr(path, nil, "empty file")
 	}
-	if _, err := f.Seek(0, io.SeekStart); err != nil {
+	format := DetectFormat(head)
+	var rd io.Reader = bufFile{br, f}
+	if regular {
+		// Read from the start of the file, unbuffered here: the readers
+		// buffer as they need, and the Arrow file and Parquet readers
+		// seek.
+		if _, err := f.Seek(0, io.SeekStart); err != nil {
+			f.Close()
+			return nil, fileErr(path, err, "cannot seek")
+		}
+		rd = f
+	} else if format == FormatArrowFile || format == FormatParquet {
 		f.Close()
-		return nil, fileErr(path, err, "cannot seek")
+		what := "an Arrow IPC file"
+		if format == FormatParquet {
+			what = "a Parquet file"
+		}
+		return nil, fileErr(path, nil, "%s is read from its footer, at its end, so it must be a regular file, not a pipe; save it to a file first, or pipe it as an Arrow IPC stream (.arrows) or CSV (undercurrent convert writes both)", what)
 	}
 	var r Reader
-	switch DetectFormat(head) {
+	switch format {
 	case FormatArrowFile:
 		r, err = newArrowFileReader(path, f, cfg)
 	case FormatArrowStream:
-		r, err = newArrowStreamReader(path, f, cfg)
+		r, err = newArrowStreamReader(path, rd, f, regular, cfg)
 	case FormatParquet:
 		r, err = newParquetReader(path, f, cfg)
 	case FormatIAGA:
-		r, err = newIAGAReader(path, f, cfg)
+		r, err = newIAGAReader(path, rd, cfg)
 	default:
-		r, err = newCSVReader(path, f, cfg)
+		r, err = newCSVReader(path, rd, cfg)
 	}
 	if err != nil {
 		f.Close()
@@ -144,6 +173,15 @@ func open(path string, cfg *config) (Reader, error) {
 	}
 	return r, nil
 }
+
+// bufFile reads a file that is not a regular one (a pipe) through the
+// buffer its first bytes were peeked into; Close closes the file.
+type bufFile struct {
+	*bufio.Reader
+	f *os.File
+}
+
+func (b bufFile) Close() error { return b.f.Close() }
 
 func unwrapPath(err error) error {
 	var pe *os.PathError

@@ -557,7 +557,7 @@ func shellQuote(s string) string {
 // unknownNameUnit refuses a field column mapped by name (c) whose name
 // states a unit that is not read: a known unit in another case or with
 // another prefix ("Bx_MT": mT or megatesla?, "Bx (fT)", "Bx [kG]"), a
-// number with a unit ("Bx [0.1 nT]"), a unit with more after it
+// step of such a unit ("Bx [0.1 fT]"), a unit with more after it
 // ("Bx_nT_x10", "Bx (uT, filtered)") or a unit that is not a field's
 // ("Bx (mV)"). Read as nT, the default, such a column's values would be
 // off by the unit's factor without a word. A name whose suffix holds no
@@ -609,8 +609,8 @@ var (
 // unitLikeText reports whether a column name's unit suffix s (bracketed:
 // the text in brackets) that is not read states a unit all the same: it
 // is a unit-like word ("MT"), has one of two letters or more among other
-// words and numbers ("0.1 nT", "uT, filtered", "mV") or is a number with
-// a one-letter unit ("0.1 T"). Ordinary words ("filtered", "sensor 2",
+// words and numbers ("0.1 fT", "uT, filtered", "mV") or is a number with
+// a one-letter unit ("0.1 V", "T x10"). Ordinary words ("filtered", "sensor 2",
 // "raw") state none.
 func unitLikeText(s string, bracketed bool) bool {
 	s = strings.TrimSpace(s)

@@ -2,6 +2,7 @@ package ingest
 
 import (
 	"fmt"
+	"math"
 	"slices"
 	"strings"
 )
@@ -35,8 +36,39 @@ var fieldUnitTable = []fieldUnit{
 	{[]string{"Oe", "oe"}, []string{"oersted"}, 1e5},
 }
 
-// fieldUnitScale returns the size in nT of the field unit s (trimmed).
+// fieldUnitScale returns the size in nT of the field unit s (trimmed): a
+// unit of the table, or one with a positive decimal step before it, as
+// loggers that write counts state it ("0.1 nT", "100pT", "1e-10T", "0.125
+// nT": one count is that many of the unit).
 func fieldUnitScale(s string) (float64, bool) {
+	if f, ok := tableUnitScale(s); ok {
+		return f, true
+	}
+	// The longest decimal that starts s is the step; no unit of the table
+	// starts with a digit, a point, a sign or an "e" that would belong to
+	// it.
+	for i := len(s) - 1; i > 0; i-- {
+		num := []byte(s[:i])
+		if !decimalText(num) || s[0] == '-' || s[0] == '+' {
+			continue
+		}
+		unit := strings.TrimSpace(s[i:])
+		unit = strings.TrimSpace(strings.TrimPrefix(unit, "*"))
+		f, ok := tableUnitScale(unit)
+		if !ok {
+			return 0, false
+		}
+		k, ok := parseNumber(num)
+		if !ok || !(k > 0) || !finite(k) {
+			return 0, false
+		}
+		return scaled(k, f), true
+	}
+	return 0, false
+}
+
+// tableUnitScale returns the size in nT of a unit of fieldUnitTable.
+func tableUnitScale(s string) (float64, bool) {
 	for _, f := range fieldUnitTable {
 		for _, sym := range f.symbols {
 			if s == sym {
@@ -92,7 +124,7 @@ func unitScale(k kind, u string) (float64, error) {
 		if f, ok := fieldUnitScale(s); ok {
 			return f, nil
 		}
-		return 0, fmt.Errorf("unknown field unit %q (want %s)", u, FieldUnits)
+		return 0, fmt.Errorf("unknown field unit %q (want %s, or one of them with the size of a count before it, as 0.1nT or 100pT)", u, FieldUnits)
 	case kindLength:
 		switch strings.ToLower(s) {
 		case "m", "metre", "metres", "meter", "meters":
@@ -187,6 +219,14 @@ func scaled(v, s float64) float64 {
 		return v / 1e6
 	case 1e-9:
 		return v / 1e9
+	}
+	if s < 1 {
+		// The same for other steps below the unit whose inverse is a
+		// whole number (a count of 0.1 nT, 100 pT = 0.1 nT): 188591
+		// counts of 0.1 nT read as 18859.1, not 18859.100000000002.
+		if inv := 1 / s; inv == math.Trunc(inv) && 1/inv == s {
+			return v / inv
+		}
 	}
 	return v * s
 }

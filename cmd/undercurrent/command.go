@@ -191,6 +191,10 @@ func run(ctx context.Context, args []string, stdout, stderr io.Writer) int {
 	// Temporary files that a run killed outright (kill -9, a power cut)
 	// left beside this run's outputs are removed once stale.
 	removeStaleTemps(outputPaths(name, fs, fs.Args()))
+	if err := checkPipes(name, inputPaths(name, fs, fs.Args())); err != nil {
+		fmt.Fprintf(stderr, "undercurrent %s: %v\n", name, err)
+		return 1
+	}
 	if err := c.run(ctx, fs, fs.Args(), stdout, stderr); err != nil {
 		if ctx.Err() != nil && isInterrupt(err) {
 			fmt.Fprintf(stderr, "undercurrent %s: interrupted\n", name)

@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"os"
 	"regexp"
 	"sort"
 	"strconv"
@@ -48,7 +49,7 @@ var fieldUnits = ingest.FieldUnits
 
 func (f *readFlags) add(fs *pflag.FlagSet) {
 	fs.StringSliceVar(&f.columns, "column", nil, "map canonical columns to the file's names: `CANON=NAME`, e.g. bx=Bx_uT,time=t_s,group=traverse (repeatable; a name holding a comma is given as it is, --column 'bx=Field X, nT': a part after a comma without = continues the name)")
-	fs.StringSliceVar(&f.units, "unit", nil, "units of columns: `CANON=UNIT`, e.g. bx=uT,time=ms (field "+fieldUnits+", or V/mV/uV/nV for induction coils with locate --coil; length m/cm/mm/km/ft; time s/ms/us/ns, or UTC for timestamps without a zone that are UTC; repeatable)")
+	fs.StringSliceVar(&f.units, "unit", nil, "units of columns: `CANON=UNIT`, e.g. bx=uT,time=ms (field "+fieldUnits+", each also with the size of a count before it for logs in counts, as bx=0.1nT or bx=100pT, or V/mV/uV/nV for induction coils with locate --coil; length m/cm/mm/km/ft; time s/ms/us/ns, or UTC for timestamps without a zone that are UTC; repeatable)")
 	fs.StringSliceVar(&f.columnsOld, "columns", nil, "same as --column")
 	fs.StringSliceVar(&f.unitsOld, "units", nil, "same as --unit")
 	_ = fs.MarkHidden("columns")
@@ -59,7 +60,7 @@ func (f *readFlags) add(fs *pflag.FlagSet) {
 	fs.StringVar(&f.frame, "frame", "enu", "axes of the field and position columns: enu, ned or sensor")
 	fs.StringVar(&f.origin, "origin", "first", "origin for WGS84 positions: first, mean or LAT,LON[,HEIGHT]")
 	fs.BoolVar(&f.decimalComma, "decimal-comma", false, "CSV numbers write decimals with a comma (12,5); default: detected, when the delimiter is not a comma, from the first data row with a number written with a decimal comma or point; --decimal-comma=false refuses them")
-	fs.BoolVar(&f.allowUnterminated, "allow-unterminated", false, "read an Arrow IPC stream file that stops without its end-of-stream marker (a copy cut short or a writer killed mid-run): the rows before the cut, with a warning")
+	fs.BoolVar(&f.allowUnterminated, "allow-unterminated", false, "read an Arrow IPC stream file that stops without its end-of-stream marker, or a CSV file whose last line, without a line end, is cut short (a copy cut short or a logger or writer stopped mid-run): the rows before the cut, with a warning")
 	fs.StringVar(&f.timeOrder, "time-order", "ordered", "how time must run through a log: ordered, per-group (within each value of the group column: sensors or traverses logged one after another) or any")
 	fs.BoolVar(&f.iagaBaseline, "iaga-baseline-frame", false, "leave IAGA-2002 variation data (H D Z, H E Z; a base-station log too) in the observatory's baseline frame instead of turning them to geographic north by the header's DECBAS; H E Z data of other types (adjusted, definitive), which are never turned, are then read without a warning")
 }
@@ -449,7 +450,9 @@ func checkFieldUnits(ctx context.Context, path string, bx, by, bz []float64, opt
 		return "", nil
 	}
 	w := ""
-	if in, err := inspectCtx(ctx, path, opts...); err == nil {
+	if isPipe(path) {
+		// A pipe is read once: the generic wording below.
+	} else if in, err := inspectCtx(ctx, path, opts...); err == nil {
 		for _, s := range in.Warnings {
 			if strings.HasPrefix(s, "field:") {
 				// Without inspect's "field: " label.
@@ -591,4 +594,35 @@ func checkPositionsRead(path string, s *ingest.Samples) error {
 	m := strings.Join(missing, " and ")
 	return fmt.Errorf("%s has no column for %s: every reading would be read at %s = 0, and the fits and the route would be those of positions that are not the readings'; give the position column with --column %s=NAME (see \"undercurrent inspect %s\" for its columns), or, if every reading really lies at %s = 0, write that column into the log",
 		path, m, missing[0], missing[0], path, missing[0])
+}
+
+// isPipe reports whether path names a pipe or a socket (a named pipe,
+// /dev/stdin fed by a pipe): input that can be read only once, from its
+// start. A path that cannot be looked up is none.
+func isPipe(path string) bool {
+	st, err := os.Stat(path)
+	return err == nil && st.Mode()&(os.ModeNamedPipe|os.ModeSocket) != 0
+}
+
+// pipeReaders are the commands that read each input log once, from its
+// start, and so may read it from a pipe.
+var pipeReaders = map[string]bool{"inspect": true, "convert": true}
+
+// checkPipes refuses a pipe among the inputs of a command that reads its
+// logs more than once (a look at the columns first, then the readings).
+func checkPipes(name string, inputs map[string]bool) error {
+	if pipeReaders[name] {
+		return nil
+	}
+	var pipes []string
+	for p := range inputs {
+		if isPipe(p) {
+			pipes = append(pipes, p)
+		}
+	}
+	if len(pipes) == 0 {
+		return nil
+	}
+	sort.Strings(pipes)
+	return fmt.Errorf("%s: a pipe, which can be read only once; %s reads a log more than once, so it needs a regular file: save the log to a file first (undercurrent convert %s log.arrows; inspect and convert read pipes)", strings.Join(pipes, ", "), name, pipes[0])
 }

@@ -37,7 +37,8 @@ nT is probably in tesla). Missing values and time going backwards are
 counted here, not rejected: --time-order says how time should run (time
 going backwards between groups is then counted as allowed with
 per-group), and the gaps of a log not in time order are counted in time
-order; an Arrow IPC stream cut short is read too, and its warning says
+order; an Arrow IPC stream cut short is read too, as is a CSV file
+without its last line where that line is cut short, and the warning says
 whether the other commands read it (--allow-unterminated). A log without a time column (a calibration
 log, which calibrate reads) is described with "time: none", without the
 sampling. The table gives each column's unit in the file
@@ -302,8 +303,9 @@ func sortStrings(s []string) {
 }
 
 // unterminatedWarning matches ingest's warnings for an Arrow IPC stream
-// read without its end-of-stream marker.
-var unterminatedWarning = regexp.MustCompile(`Arrow IPC stream (stops at byte [0-9]+, .*without its end-of-stream marker|is cut short)`)
+// read without its end-of-stream marker, and for a CSV file read without
+// its last line, cut short.
+var unterminatedWarning = regexp.MustCompile(`Arrow IPC stream (stops at byte [0-9]+, .*without its end-of-stream marker|is cut short)|the last line has no line end and .*: left out as a line cut short`)
 
 // noteUnterminated adds to the warning for an Arrow IPC stream cut short
 // (which inspect reads all the same, to describe it) whether the other
@@ -315,6 +317,8 @@ func noteUnterminated(in *ingest.Inspection, allowed bool) {
 		}
 		if allowed {
 			in.Warnings[i] = w + " (--allow-unterminated: the other commands read it too)"
+		} else if strings.Contains(w, "left out as a line cut short") {
+			in.Warnings[i] = w + "; the other commands refuse the file unless --allow-unterminated, which leaves the line out too"
 		} else {
 			in.Warnings[i] = w + "; inspect reads it regardless, but the other commands refuse it unless --allow-unterminated"
 		}
@@ -336,6 +340,11 @@ var backwardsWarning = regexp.MustCompile(`^time: goes backwards [0-9]+ times \(
 func inspectOrder(ctx context.Context, path string, opts []ingest.Option, order ingest.TimeOrder, flag string, in *ingest.Inspection) error {
 	ts := &in.Time
 	if in.NoTime || in.Rows == 0 || ts.Backwards == 0 && (order != ingest.TimeOrderedPerGroup || ts.Repeated == 0) {
+		return nil
+	}
+	if isPipe(path) {
+		// A pipe is read once: its steps stay counted in file order.
+		in.Warnings = append(in.Warnings, "time: the log is read from a pipe, once, so its gaps and steps back are counted in file order, not in time order; inspect a saved copy for the counts in time order")
 		return nil
 	}
 	times, groups, err := readTimes(ctx, path, opts)

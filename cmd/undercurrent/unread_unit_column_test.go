@@ -26,7 +26,7 @@ func TestUnreadUnitColumnAdvice(t *testing.T) {
 	code, _, errOut := cli(t, "inspect", p)
 	for _, want := range []string{
 		`no column for bx: column "bx [furlong]" may be bx (its name begins so)`,
-		"(want " + ingest.FieldUnits + ")",
+		"(want " + ingest.FieldUnits + ", or one of them with the size of a count before it",
 		"--column 'bx=bx [furlong]')",
 		"--unit bx=U)",
 	} {
@@ -40,7 +40,7 @@ func TestUnreadUnitColumnAdvice(t *testing.T) {
 		}
 	}
 	code, _, errOut = cli(t, "inspect", "--unit", "bx=furlong", p)
-	if want := `unknown field unit "furlong" (want ` + ingest.FieldUnits + ")"; code != 2 || !strings.Contains(errOut, want) {
+	if want := `unknown field unit "furlong" (want ` + ingest.FieldUnits + ", or one of them with the size of a count before it, as 0.1nT or 100pT)"; code != 2 || !strings.Contains(errOut, want) {
 		t.Errorf("--unit bx=furlong: exit %d, stderr %q; want exit 2 and %q", code, errOut, want)
 	}
 	// The mapping and unit it names read the column.

@@ -23,13 +23,13 @@ func TestCalibrateZeroAdviceNames(t *testing.T) {
 	if code != 2 || !strings.Contains(stderr, "or put it in the column names (bx_nT, by_nT, bz_nT)") || strings.Contains(stderr, "(probe)_nT") {
 		t.Errorf("exit %d, stderr:\n%s\nwant names built from the axes suggested", code, stderr)
 	}
-	// A bracketed number with a unit is a unit not read: refused.
+	// A bracketed step of a unit not read (fT) is refused.
 	scaled := filepath.Join(dir, "scaled.csv")
-	if err := os.WriteFile(scaled, []byte("time,Field X [0.1 nT],Field Y [0.1 nT],Field Z [0.1 nT]\n0,150,2000,-4700\n1,151,2000,-4700\n"), 0o644); err != nil {
+	if err := os.WriteFile(scaled, []byte("time,Field X [0.1 fT],Field Y [0.1 fT],Field Z [0.1 fT]\n0,150,2000,-4700\n1,151,2000,-4700\n"), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	code, _, stderr = cli(t, "calibrate", "--zero", scaled, "--column", "bx=Field X [0.1 nT],by=Field Y [0.1 nT],bz=Field Z [0.1 nT]")
-	if code != 1 || !strings.Contains(stderr, `column Field X [0.1 nT]: its name (mapped to bx) states the unit "0.1 nT"`) {
+	code, _, stderr = cli(t, "calibrate", "--zero", scaled, "--column", "bx=Field X [0.1 fT],by=Field Y [0.1 fT],bz=Field Z [0.1 fT]")
+	if code != 1 || !strings.Contains(stderr, `column Field X [0.1 fT]: its name (mapped to bx) states the unit "0.1 fT"`) {
 		t.Errorf("exit %d, stderr:\n%s\nwant the unknown unit in the name refused", code, stderr)
 	}
 	plain := filepath.Join(dir, "plain.csv")
