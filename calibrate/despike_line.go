@@ -76,6 +76,15 @@ func lineReview(cols [][]float64, flags [][]bool, scales [][][2]float64, ds Desp
 	if K < 5 || n < 2*lineParams+1 {
 		return
 	}
+	flagged := false
+	for _, f := range flags {
+		for _, v := range f {
+			flagged = flagged || v
+		}
+	}
+	if !flagged {
+		return // nothing to re-judge
+	}
 	noise := make([]float64, len(cols))
 	top := 0.0
 	for ci, c := range cols {
