@@ -121,6 +121,7 @@ func FromOffset(method string, res *OffsetResult, inputs ...Input) *Calibration 
 			c.Notes = append(c.Notes, fmt.Sprintf("offset of the %c axis is not determined by this method and is left at zero", "xyz"[k]))
 		}
 	}
+	c.Notes = append(c.Notes, res.Notes...)
 	return c
 }
 

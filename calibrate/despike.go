@@ -97,11 +97,29 @@ func FindSpikes(cols [][]float64, set *DespikeSettings) (spike []bool, perCol []
 			}
 		}
 	}
-	for ci, c := range cols {
-		if ds.Median {
+	if ds.Median {
+		for ci, c := range cols {
 			perCol[ci] = hampel(c, ds, spike)
-		} else {
-			perCol[ci] = trendSpikes(c, ds, spike)
+		}
+		return spike, perCol, nonFinite, nil
+	}
+	// Each column against its local trend, then the readings where that
+	// trend could not follow the field, or found a spike, against a line
+	// current's shape in all columns at once (lineReview).
+	flags, scales := make([][]bool, len(cols)), make([][][2]float64, len(cols))
+	for ci, c := range cols {
+		flags[ci], scales[ci] = make([]bool, n), make([][2]float64, n)
+		trendSpikes(c, ds, flags[ci], scales[ci])
+	}
+	if len(cols) <= 3 {
+		lineReview(cols, flags, scales, ds)
+	}
+	for ci := range cols {
+		for i, f := range flags[ci] {
+			if f {
+				perCol[ci]++
+				spike[i] = true
+			}
 		}
 	}
 	return spike, perCol, nonFinite, nil
@@ -135,7 +153,9 @@ func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
 // (calibrate's despike tests): a line current's (Biot-Savart) at 2.5
 // reading spacings or more from the sensor, a point dipole's at 5 or more,
 // a sine's of 4 or more readings a cycle. (The median filter cut readings
-// of the line at 2.5 spacings and of the dipoles at 6.)
+// of the line at 2.5 spacings and of the dipoles at 6.) Closer, a line's
+// peak is kept by FindSpikes's second look, against the line's own shape
+// (lineReview, despike_line.go).
 //
 // Near an end of the run the window of 2K+1 rows is moved inwards, so
 // that the reading keeps as many neighbours, and its own neighbours there
@@ -168,8 +188,10 @@ const trendDropCut = 5
 const minTrendPoints = 7
 
 // trendSpikes marks the spikes of one column in spike and returns their
-// number (see above).
-func trendSpikes(c []float64, ds DespikeSettings, spike []bool) int {
+// number (see above). When scale is not nil it receives the scale each
+// reading was judged with and its departure (0 where a reading was not
+// judged; the scale 0 where it departed too little to need one).
+func trendSpikes(c []float64, ds DespikeSettings, spike []bool, scale [][2]float64) int {
 	n, K := len(c), ds.HalfWidth
 	var tf trendFit
 	tf.init(K)
@@ -238,6 +260,9 @@ func trendSpikes(c []float64, ds DespikeSettings, spike []bool) int {
 			continue
 		default:
 			dev, s = tf.fit(min(ds.Threshold, trendDropCut), cut, 2)
+		}
+		if scale != nil {
+			scale[i] = [2]float64{s, dev}
 		}
 		if math.Abs(dev) > ds.Threshold*math.Max(s, ds.Floor) {
 			count++

@@ -192,7 +192,7 @@ func TestTrendSpikesMatchesDirect(t *testing.T) {
 	for _, K := range []int{2, 3, 5, 10} {
 		ds := DespikeSettings{HalfWidth: K, Threshold: 3, Floor: 0.1}
 		got := make([]bool, len(x))
-		trendSpikes(x, ds, got)
+		trendSpikes(x, ds, got, nil)
 		for i, xi := range x {
 			if !finite(xi) {
 				if got[i] {

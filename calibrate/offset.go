@@ -18,8 +18,19 @@ type OffsetResult struct {
 	Determined [3]bool
 	// N is the number of readings used (for the flip method, per position).
 	N [2]int
+	// Scatter is the part of Sigma from the readings' scatter alone, nT;
+	// for the flip method Sigma also takes in Coupling.
+	Scatter [3]float64
+	// Coupling is, for the flip method, the allowance in Sigma for the
+	// sensor's cross-axis coupling of the flip axis into the axes turned
+	// (FlipCouplingAllowance of the field along the flip axis), nT: flips
+	// alone cannot tell it from the offset. FlipAxisField is that field.
+	Coupling      [3]float64
+	FlipAxisField float64
 	// Warnings say what the caller should show.
 	Warnings []string
+	// Notes say how the result was reached (for the calibration file).
+	Notes []string
 }
 
 // Tolerances of the flip method's sanity checks, as fractions of the field
@@ -41,6 +52,25 @@ const (
 	// sensor offset. An axis that was not flipped yields its field
 	// component plus the offset, typically 20 000 to 50 000 nT.
 	FlipMaxOffset = 0.5
+	// FlipCouplingAllowance is the cross-axis coupling allowed for in a
+	// flip offset's standard error, as a fraction of the field along the
+	// flip axis. A reading is r = M B + o, with M the sensor's soft-iron,
+	// scale and non-orthogonality matrix; a half turn about z changes the
+	// sign of Bx and By but not of Bz, so the mean of the two logs is
+	// o + M[:,z] Bz: the off-diagonal terms M_xz and M_yz times the field
+	// along the flip axis stay in the "offset", and so does the field
+	// along the flip axis times the angle by which the turn axis misses
+	// the sensor's axis. Both are commonly of the order of 1%: the
+	// Kestrel Moor sensor's soft iron has off-diagonal terms of 0.008 to
+	// 0.015 (testdata/scenarios/kestrel-moor-spin.toml), and a turn axis
+	// 0.5 to 1 degree off, as by hand, is 0.009 to 0.017 (the 1% is an
+	// order of magnitude from those, not a measured property of any
+	// sensor). About a vertical axis that is some 450 nT.
+	FlipCouplingAllowance = 0.01
+	// FlipAxisWarnFraction is the field along the flip axis, as a fraction
+	// of the field magnitude, above which the flip offset gets a warning
+	// that the coupling term may dominate it.
+	FlipAxisWarnFraction = 0.1
 )
 
 // FlipOffset estimates the offsets of the two axes perpendicular to axis
@@ -51,6 +81,16 @@ const (
 //	offset = (mean(r0) + mean(r180)) / 2.
 //
 // The component along axis keeps its sign and is not determined.
+//
+// Flips alone cannot separate the offset from the sensor's cross-axis
+// coupling of the flip axis into the two others (see
+// FlipCouplingAllowance): each offset's Sigma takes in an allowance of
+// FlipCouplingAllowance times the field along the flip axis besides the
+// readings' scatter (Scatter), a note says so, and when that field is more
+// than FlipAxisWarnFraction of the field magnitude a warning says how much
+// each 0.1% of coupling adds and advises flipping about an axis at right
+// angles to the field (where the term vanishes) or the spin calibration,
+// which fits the coupling.
 //
 // The logs are checked against what a flip does, and refused with an error
 // saying what is wrong when axis reads differently (by more than
@@ -79,10 +119,33 @@ func FlipOffset(r0, r180 [][3]float64, axis int) (*OffsetResult, error) {
 		}
 		res.Determined[k] = true
 		res.Offset[k] = 0.5 * (m0[k] + m1[k])
-		res.Sigma[k] = 0.5 * math.Sqrt(s0[k]*s0[k]/float64(len(r0))+s1[k]*s1[k]/float64(len(r180)))
+		res.Scatter[k] = 0.5 * math.Sqrt(s0[k]*s0[k]/float64(len(r0))+s1[k]*s1[k]/float64(len(r180)))
 	}
 	if err := checkFlip(m0, m1, s0, s1, axis, res); err != nil {
 		return nil, err
+	}
+	// The field along the flip axis, the same in both logs (less its own
+	// offset, small beside it and not known here).
+	ba := 0.5 * (m0[axis] + m1[axis])
+	res.FlipAxisField = ba
+	name := string("xyz"[axis])
+	for k := range 3 {
+		if !res.Determined[k] {
+			continue
+		}
+		res.Coupling[k] = FlipCouplingAllowance * math.Abs(ba)
+		res.Sigma[k] = math.Hypot(res.Scatter[k], res.Coupling[k])
+	}
+	a, b := (axis+1)%3, (axis+2)%3
+	if a > b {
+		a, b = b, a
+	}
+	res.Notes = append(res.Notes, fmt.Sprintf("the offsets' standard errors take in %.0f nT for cross-axis coupling (%.0f%% of the %.0f nT field along the flip axis %s, which a flip leaves in the offsets of %s and %s: soft iron, axes not at right angles, a turn axis off the sensor's) besides the readings' scatter of ± %.2g, %.2g nT; flips alone cannot tell that coupling from an offset",
+		FlipCouplingAllowance*math.Abs(ba), 100*FlipCouplingAllowance, ba, name, string("xyz"[a]), string("xyz"[b]), res.Scatter[a], res.Scatter[b]))
+	f := math.Max(norm3(m0), norm3(m1))
+	if math.Abs(ba) > FlipAxisWarnFraction*f {
+		res.Warnings = append(res.Warnings, fmt.Sprintf("the field along the flip axis %s is %.0f nT (%.0f%% of the %.0f nT field): a coupling of %s into %s and %s of only 0.1%% (soft iron, axes not at right angles, or the turn axis 0.06 degrees off the sensor's) adds %.0f nT to their offsets, and flips alone cannot tell it from the offset (the spread allowed, ± %.0f nT, is for 1%%); flip about an axis held at right angles to the field (horizontal, pointing magnetic east or west), where that term vanishes, or calibrate with --spin, which fits the coupling",
+			name, ba, 100*math.Abs(ba)/f, f, name, string("xyz"[a]), string("xyz"[b]), 0.001*math.Abs(ba), FlipCouplingAllowance*math.Abs(ba)))
 	}
 	return res, nil
 }

@@ -42,6 +42,13 @@ Methods (give exactly one):
   --flip0 FILE --flip180 FILE
                    readings at 0 and 180 degrees of rotation about one axis
                    (--flip-axis, default z): offsets of the two other axes.
+                   A flip leaves the field along its axis times the sensor's
+                   cross-axis coupling (soft iron, axes not at right angles,
+                   a turn axis off the sensor's) in those offsets, which flips
+                   alone cannot tell apart: their standard errors allow 1% of
+                   that field, with a warning when it is large. Flip about an
+                   axis at right angles to the field (horizontal, magnetic
+                   east-west), or use --spin, which fits the coupling.
   --zero FILE      readings inside a magnetic shield: offsets of all axes.
                    Near zero in any unit, so the field's unit must be stated:
                    by --unit, in the column names (Bx_nT), by the format
@@ -246,6 +253,10 @@ Examples:
 					return inFile(flip0+" and "+flip180, err)
 				}
 				cal = calibrate.FromOffset(calibrate.MethodFlip, res, in0, in1)
+				for _, w := range res.Warnings {
+					fmt.Fprintf(stderr, "warning: %s and %s: %s\n", flip0, flip180, w)
+					cal.Notes = append(cal.Notes, w)
+				}
 			}
 			if err := ctx.Err(); err != nil {
 				return err

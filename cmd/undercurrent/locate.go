@@ -102,7 +102,7 @@ func (o *locateOptions) setFlags(fs *pflag.FlagSet) {
 	fs.Float64Var(&o.groundSigma, "ground-sigma", 0, "the ground level is known to `S` metres (one sigma) from the depth reference, e.g. how steadily the sensors were held above it; added to the cover sigmas (which otherwise cover the reading noise only)")
 	fs.Float64Var(&o.noise, "noise", 0, "reading noise per axis, `NT` nanotesla, of each reading (for AC, each window's phasor then has NT/sqrt(samples in it)); default, or 0: estimated from the fits")
 	fs.BoolVar(&o.robust, "robust", false, "down-weight outlying readings (Huber weights)")
-	fs.BoolVar(&o.despike, "despike", false, "remove spikes (Hampel filter) before fitting")
+	fs.BoolVar(&o.despike, "despike", false, "remove spikes (readings off the local trend of their neighbours, and off a line current's shape fitted to them) before fitting")
 	fs.Float64Var(&o.stepK, "step-k", 0, "report a step in current when it exceeds `K` standard deviations (default 3)")
 	fs.Float64Var(&o.minStep, "min-step", 2, "report a change in current as a step only when it is at least `PCT` per cent of the current; a smaller change beyond K sigma is reported as information (the straight-line model's error near a change of depth or a bend is about 1%); 0 reports every change beyond K sigma as a step")
 	fs.StringVar(&o.title, "title", "", "title of the report (default: the site named in the log, or the log's name)")
