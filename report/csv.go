@@ -135,7 +135,7 @@ func WriteCSV(w io.Writer, d *Document) error {
 			row := base("", "", g.Centroid)
 			if st := d.stationOf(&g, 0, nil); st != nil {
 				row[csvCol["used"]] = strconv.FormatBool(st.Used)
-				row[csvCol["left_out"]] = textCell(leftOut(&g, st))
+				row[csvCol["left_out"]] = textCell(d.leftOut(st, 0))
 			}
 			if err := cw.Write(row); err != nil {
 				return fmt.Errorf("report: writing CSV: %w", err)
@@ -153,7 +153,7 @@ func WriteCSV(w io.Writer, d *Document) error {
 			}
 			if st := d.stationOf(&g, i, &s); st != nil {
 				set("used", strconv.FormatBool(st.Used))
-				set("left_out", textCell(leftOut(&g, st)))
+				set("left_out", textCell(d.leftOut(st, s.Conductor)))
 			}
 			if p := g.Pair; p != nil && (i == p.Sources[0] || i == p.Sources[1]) {
 				// A line of an unresolved go-and-return pair: its current
@@ -306,18 +306,22 @@ func (d *Document) stationOf(g *Group, i int, s *Source) *Station {
 	return nil
 }
 
-// leftOut says why station st of group g was left out of its conductor's
-// current and cover profile; empty when it was used. A station is used
-// when its group's fit is usable and it is not taken for a magnetised
-// object (routeOf).
-func leftOut(g *Group, st *Station) string {
-	switch {
-	case st.Used:
+// leftOut says why station st of group g, on the route of conductor (0
+// for conductor 1, else a further conductor's Track.Number), was left out
+// of its conductor's current and cover profile; empty when it was used
+// (see whyLeftOut).
+func (d *Document) leftOut(st *Station, conductor int) string {
+	switch d.whyLeftOut(st, conductor) {
+	case leftUsed:
 		return ""
-	case !g.OK:
+	case leftFailed:
 		return "the fit failed or found no current (see problem)"
+	case leftObject:
+		return "a magnetised object at this station (see its dipole-anomaly finding)"
+	case leftPastEnd:
+		return "past the conductor's end: the fit finds only the field beyond it (see problem and the finding that the conductor appears to end)"
 	}
-	return "a magnetised object at this station (see its dipole-anomaly finding)"
+	return "left out of the profile (see problem)"
 }
 
 // sourceChainage is the chainage of source s of group g along its own

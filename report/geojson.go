@@ -103,7 +103,8 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 			fc.Features = append(fc.Features, f)
 		}
 	}
-	for _, t := range d.Conductors {
+	for k := range d.Conductors {
+		t := &d.Conductors[k] // routeFeature tells its conductor by the route's address
 		f, ok := d.routeFeature(&t.Route, map[string]any{
 			"conductor": t.Number,
 			"offset_m":  round(t.Offset, 3),
@@ -136,7 +137,7 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 			}
 			if st := d.stationOf(&g, i, &s); st != nil {
 				props["used"] = st.Used
-				if why := leftOut(&g, st); why != "" {
+				if why := d.leftOut(st, s.Conductor); why != "" {
 					props["left_out"] = why
 				}
 			}
@@ -434,6 +435,12 @@ func (d *Document) routeFeature(r *Route, props map[string]any) (f feature, ok b
 	// The stations that break the line, between its first and last
 	// drawn station, and why: a GIS user sees the gap explained.
 	first, last := parts[0][0].Key, parts[len(parts)-1][len(parts[len(parts)-1])-1].Key
+	conductor := 0 // r's conductor: 0 for conductor 1's route
+	for k := range d.Conductors {
+		if r == &d.Conductors[k].Route {
+			conductor = d.Conductors[k].Number
+		}
+	}
 	groups := map[string]*Group{}
 	for i := range d.Groups {
 		groups[d.Groups[i].Key] = &d.Groups[i]
@@ -448,8 +455,8 @@ func (d *Document) routeFeature(r *Route, props map[string]any) (f feature, ok b
 		if inside && !s.Used {
 			gaps = append(gaps, s.Key)
 			w := "not used"
-			if g := groups[s.Key]; g != nil {
-				w = leftOut(g, s)
+			if groups[s.Key] != nil {
+				w = d.leftOut(s, conductor)
 			}
 			why = append(why, s.Key+": "+w)
 		}

@@ -1094,28 +1094,58 @@ func alongPlot(d *Document, r *Route, conductor int, which string, narrow bool) 
 	// Drawn at the fit's numbers it put a "not used" ring at 38 A and
 	// 38 m past a conductor's end, and stretched the axes to them; it is
 	// marked on the chainage axis instead. A station left out as a
-	// magnetised object keeps its ring at its value.
-	failed := map[string]bool{}
-	for i := range d.Groups {
-		if !d.Groups[i].OK {
-			failed[d.Groups[i].Key] = true
-		}
-	}
-	var x, y, e, ux, uy, fx []float64
-	for _, st := range r.Stations {
+	// magnetised object keeps its ring at its value, and one past the
+	// conductor's end (whose sound fit finds only the field beyond the
+	// end) a triangle at its value: both were rings under "not used (poor
+	// fit or object)", then under "not used (object)", which called the
+	// stations past an end objects where no object was found.
+	var x, y, e, fx []float64
+	var objects, pastEnd, other xy
+	for i := range r.Stations {
+		st := &r.Stations[i]
 		v, s := st.Current, st.CurrentSigma
 		if which == "depth" {
 			v, s = st.Depth, st.DepthSigma
 		}
-		if !st.Used && failed[st.Key] {
+		switch d.whyLeftOut(st, conductor) {
+		case leftUsed:
+			x, y, e = append(x, st.Chainage), append(y, v), append(e, 2*s)
+		case leftFailed:
 			fx = append(fx, st.Chainage)
-			continue
+		case leftObject:
+			objects.x, objects.y = append(objects.x, st.Chainage), append(objects.y, v)
+		case leftPastEnd:
+			pastEnd.x, pastEnd.y = append(pastEnd.x, st.Chainage), append(pastEnd.y, v)
+		default:
+			other.x, other.y = append(other.x, st.Chainage), append(other.y, v)
 		}
-		if !st.Used {
-			ux, uy = append(ux, st.Chainage), append(uy, v)
-			continue
+	}
+	// A station not used whose value lies far outside the used stations'
+	// range is drawn at the axis's edge, not at its value (valueRange.off):
+	// past a conductor's end the fits' depths grow without bound (8.7
+	// and 19.3 m beyond the end of a spur 1.5 m below the sensors), and
+	// the axis ran to 20 m, pressing the conductor's profile into the
+	// top twelfth of the figure. The table gives every value.
+	keep := usedRange(x, y, e)
+	if which == "depth" {
+		if g, ok := groundDepth(d); ok && keep.ok {
+			keep.lo, keep.hi = math.Min(keep.lo, g), math.Max(keep.hi, g)
+			if mc := d.MinCover; mc != nil && mc.Depth > 0 {
+				keep.hi = math.Max(keep.hi, g+mc.Depth)
+			}
 		}
-		x, y, e = append(x, st.Chainage), append(y, v), append(e, 2*s)
+	}
+	var beyond xy // off the scale: their chainage and value
+	for _, set := range []*xy{&objects, &pastEnd, &other} {
+		var in xy
+		for i := range set.x {
+			if keep.off(set.y[i]) {
+				beyond.x, beyond.y = append(beyond.x, set.x[i]), append(beyond.y, set.y[i])
+				continue
+			}
+			in.x, in.y = append(in.x, set.x[i]), append(in.y, set.y[i])
+		}
+		*set = in
 	}
 	// A go-and-return pair's route carries the pair's net current (the
 	// current that does not return through it), not a core's: labelled
@@ -1158,16 +1188,28 @@ func alongPlot(d *Document, r *Route, conductor int, which string, narrow bool) 
 		}
 		p.Legend.Add("estimate, ±2σ", s)
 	}
-	if len(ux) > 0 {
-		s, err := scatter(p, xy{ux, uy}, draw.RingGlyph{}, colSurvey, 3)
+	for _, m := range []struct {
+		at    xy
+		glyph draw.GlyphDrawer
+		name  string
+	}{
+		// A poor fit is used (drawn as an estimate); what is left out
+		// with a value is an object, a station past the end, or (no
+		// finding names it) a station left out otherwise.
+		{objects, draw.RingGlyph{}, "not used (object)"},
+		{pastEnd, draw.PyramidGlyph{}, "not used (past the end)"},
+		{other, draw.SquareGlyph{}, "not used"},
+	} {
+		if m.at.Len() == 0 {
+			continue
+		}
+		s, err := scatter(p, m.at, m.glyph, colSurvey, 3)
 		if err != nil {
 			return nil, err
 		}
-		// A poor fit is used (drawn as an estimate); what is left out
-		// with a value is a magnetised object.
-		p.Legend.Add("not used (object)", s)
+		p.Legend.Add(m.name, s)
 	}
-	if len(fx) > 0 && !(p.Y.Min <= p.Y.Max) {
+	if (len(fx) > 0 || beyond.Len() > 0) && !(p.Y.Min <= p.Y.Max) {
 		p.Y.Min, p.Y.Max = 0, 1 // no value to plot at all
 	}
 	x0, x1 := 0.0, r.Length
@@ -1237,7 +1279,65 @@ func alongPlot(d *Document, r *Route, conductor int, which string, narrow bool) 
 		}
 		p.Legend.Add("fit failed, no value (on the axis)", s)
 	}
+	if beyond.Len() > 0 {
+		// At the edge the value lies beyond: on the depth plot's
+		// inverted scale Y.Max is the bottom.
+		at := xy{x: beyond.x, y: make([]float64, beyond.Len())}
+		for i, v := range beyond.y {
+			at.y[i] = p.Y.Min
+			if v > keep.hi {
+				at.y[i] = p.Y.Max
+			}
+		}
+		// Not the failed fits' cross (colInfo): a value that lies off
+		// the axis, grey as the other stations not used.
+		s, err := scatter(p, at, draw.PlusGlyph{}, colSurvey, 3.5)
+		if err != nil {
+			return nil, err
+		}
+		p.Legend.Add("not used, off the scale (at its edge)", s)
+	}
 	return p, nil
+}
+
+// valueRange is the span of values a along-route plot keeps on its axis
+// (usedRange); ok is false when there is none.
+type valueRange struct {
+	lo, hi float64
+	ok     bool
+}
+
+// usedRange is the range of the used stations' values y with their bars
+// e (each ± e[i]).
+func usedRange(x, y, e []float64) valueRange {
+	r := valueRange{lo: math.Inf(1), hi: math.Inf(-1)}
+	for i := range x {
+		if math.IsNaN(y[i]) || math.IsInf(y[i], 0) {
+			continue
+		}
+		b := e[i]
+		if math.IsNaN(b) || math.IsInf(b, 0) {
+			b = 0
+		}
+		r.lo, r.hi, r.ok = math.Min(r.lo, y[i]-b), math.Max(r.hi, y[i]+b), true
+	}
+	return r
+}
+
+// off reports whether a station not used with value v lies off the
+// scale: farther outside r than r's own span (at least a tenth of its
+// largest magnitude, and 0.1, for a flat profile), so that drawing it at
+// its value would leave the used stations in under a third of the axis.
+// A non-finite value is off the scale; without a range nothing is.
+func (r valueRange) off(v float64) bool {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return true
+	}
+	if !r.ok {
+		return false
+	}
+	span := math.Max(r.hi-r.lo, math.Max(0.1*math.Max(math.Abs(r.lo), math.Abs(r.hi)), 0.1))
+	return v < r.lo-span || v > r.hi+span
 }
 
 // colStepBand shades a current step's one-sigma band of chainage: the
