@@ -100,11 +100,16 @@ type BaseGap struct {
 	Missing []string
 	// Rows are the rover rows in the gap.
 	Rows []int
+	// Absent is the number of base readings missing in the gap: the
+	// base's sample intervals from From to To, less one.
+	Absent int
 	// LineRMS and LineMax estimate the straight line's error across the
-	// gap from the base record itself: the vector departure of the record
-	// from the straight line between its readings To-From apart, over
-	// every such span wholly recorded within LineWindow of the gap, RMS
-	// and largest, nT. Spans counts those spans; with none, both are NaN.
+	// gap from the base record itself: the departure of the components
+	// missing in the gap (all three, a vector, when Missing is empty)
+	// from the straight line between the record's readings To-From apart,
+	// over every such span wholly recorded within LineWindow of the gap,
+	// RMS and largest, nT. Spans counts those spans; with none, both are
+	// NaN.
 	LineRMS, LineMax float64
 	Spans            int
 }
@@ -121,9 +126,12 @@ const LineWindow = 3600.0
 // components vb present) departs from the straight line between readings
 // span s apart, over spans starting within LineWindow of [t0, t1] and
 // lying wholly outside it with no reading missing (step is the record's
-// sample interval): RMS and largest vector departure at the readings
-// inside the spans, and the number of spans.
-func lineError(t []float64, vb [3][]float64, t0, t1, step float64) (rms, worst float64, spans int) {
+// sample interval): RMS and largest departure at the readings inside the
+// spans, of the components comps (a vector, when more than one), and the
+// number of spans. Before, all three components were measured whatever
+// was missing, and a gap in Z alone in Boulder's one-minute record was
+// quoted with the horizontal field's variation, six times too large.
+func lineError(t []float64, vb [3][]float64, comps []int, t0, t1, step float64) (rms, worst float64, spans int) {
 	span := t1 - t0
 	n := int(math.Round(span / step)) // readings from one end to the other
 	if n < 2 || len(t) <= n {
@@ -146,7 +154,7 @@ func lineError(t []float64, vb [3][]float64, t0, t1, step float64) (rms, worst f
 		for q := i + 1; q < j; q++ {
 			f := (t[q] - t[i]) / (t[j] - t[i])
 			d2 := 0.0
-			for k := 0; k < 3; k++ {
+			for _, k := range comps {
 				d := vb[k][q] - (vb[k][i] + f*(vb[k][j]-vb[k][i]))
 				d2 += d * d
 			}
@@ -458,10 +466,19 @@ func BaseCorrectColumns(roverName string, rt []float64, rb [3][]float64, baseNam
 			}
 		}
 		for _, g := range bridged {
+			comps := []int{0, 1, 2}
 			if len(g.Missing) == 3 {
 				g.Missing = nil
+			} else {
+				comps = comps[:0]
+				for k, name := range fieldNames {
+					if slices.Contains(g.Missing, name) {
+						comps = append(comps, k)
+					}
+				}
 			}
-			g.LineRMS, g.LineMax, g.Spans = lineError(ft3, fb, g.From, g.To, step)
+			g.Absent = max(1, int(math.Round((g.To-g.From)/step))-1)
+			g.LineRMS, g.LineMax, g.Spans = lineError(ft3, fb, comps, g.From, g.To, step)
 			rep.Gaps = append(rep.Gaps, *g)
 		}
 		sort.Slice(rep.Gaps, func(a, b int) bool { return rep.Gaps[a].From < rep.Gaps[b].From })

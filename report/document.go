@@ -121,13 +121,17 @@ type BaseGap struct {
 	Seconds float64 `json:"seconds"`
 	// Missing names the field components missing when not all three are.
 	Missing []string `json:"missing,omitempty"`
+	// BaseReadingsMissing counts the base readings missing in the gap
+	// (one, for a 120-s gap in one-minute data).
+	BaseReadingsMissing int `json:"base_readings_missing"`
 	// Readings counts the survey readings in the gap, and Groups names
 	// the groups they belong to (empty when the run was not grouped).
 	Readings int      `json:"readings"`
 	Groups   []string `json:"groups,omitempty"`
 	// LineErrorRMS and LineErrorMax estimate the straight line's error
 	// from the base record itself: its departure from straight lines
-	// over spans as long within an hour of the gap, RMS and largest, nT.
+	// over spans as long within an hour of the gap, RMS and largest, nT,
+	// of the components missing (Missing; all three when it is empty).
 	// Nil when the record has no such span.
 	LineErrorRMS *float64 `json:"line_error_rms_nt,omitempty"`
 	LineErrorMax *float64 `json:"line_error_max_nt,omitempty"`

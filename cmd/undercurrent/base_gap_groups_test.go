@@ -226,7 +226,10 @@ func TestLocateBaseGapGroupsReported(t *testing.T) {
 			t.Errorf("the warning does not name %s with its %d readings in the gap:\n%s", g.Key, inGap[g.Key], stderr)
 		}
 	}
-	if !strings.Contains(stderr, "from 2014-11-01T16:00:00Z to 2014-11-01T16:05:00Z (300 s;") {
+	if bg.BaseReadingsMissing != 4 {
+		t.Errorf("gap %+v: want 4 base readings missing (16:01 to 16:04)", bg)
+	}
+	if !strings.Contains(stderr, "from 2014-11-01T16:00:00Z to 2014-11-01T16:05:00Z (300 s, 4 base readings missing;") {
 		t.Errorf("no warning naming the gap:\n%s", stderr)
 	}
 	if !strings.Contains(doc.BaseStation.Summary, "bridged by a straight line") {
@@ -314,7 +317,10 @@ func TestLocateBaseDailyFilesJoined(t *testing.T) {
 		t.Fatal(err)
 	}
 	code, _, stderr = cli(t, "locate", "--group-by", "group", "--reference-z", "0", "--base", both, "--base", edited, survey)
-	if code == 0 || !strings.Contains(stderr, "overlap and disagree") || !strings.Contains(stderr, "2014-11-01T23:50:00") {
+	// The values to 0.01 nT, with the difference in H named (before:
+	// 17-digit east and north values that neither file holds).
+	if code == 0 || !strings.Contains(stderr, "overlap and disagree") || !strings.Contains(stderr, "2014-11-01T23:50:00") ||
+		!strings.Contains(stderr, "horizontal intensity +2.00 nT, vertical +0.00 nT") || strings.Contains(stderr, ".0000") {
 		t.Errorf("overlapping files that disagree: exit %d, stderr:\n%s", code, stderr)
 	}
 	// Another station's code: refused.

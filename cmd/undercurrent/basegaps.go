@@ -89,9 +89,11 @@ func noteBaseGaps(sv *survey, o *locateOptions, s *ingest.Samples, rep *calibrat
 // line's estimated error.
 func (u *baseGapUse) describe() string {
 	g := u.gap
-	what := ""
+	// The span bridged and what is missing in it: "120 s" alone read as
+	// two minutes lost where one minute's reading was.
+	what := fmt.Sprintf("%s missing", plural(g.Absent, "base reading"))
 	if len(g.Missing) > 0 {
-		what = ", " + strings.Join(g.Missing, " and ") + " missing"
+		what = fmt.Sprintf("%s missing in %s", strings.Join(g.Missing, " and "), plural(g.Absent, "base reading"))
 	}
 	groups := ""
 	if len(u.keys) > 0 && !(len(u.keys) == 1 && u.keys[0] == "") {
@@ -103,9 +105,13 @@ func (u *baseGapUse) describe() string {
 	}
 	est := "the base record holds no span as long nearby to tell the straight line's error"
 	if g.Spans > 0 {
-		est = fmt.Sprintf("over spans as long within an hour of it the base record departs from a straight line by %.2g nT RMS, up to %.2g nT", g.LineRMS, g.LineMax)
+		of := ""
+		if len(g.Missing) > 0 {
+			of = " in " + strings.Join(g.Missing, " and ")
+		}
+		est = fmt.Sprintf("over spans as long within an hour of it the base record departs from a straight line%s by %.2g nT RMS, up to %.2g nT", of, g.LineRMS, g.LineMax)
 	}
-	return fmt.Sprintf("from %s to %s (%g s%s; %s%s); %s", fmtGapTime(g.From), fmtGapTime(g.To), math.Round((g.To-g.From)*1e3)/1e3, what, plural(len(g.Rows), "reading"), groups, est)
+	return fmt.Sprintf("bridged from %s to %s (%g s, %s; %s%s); %s", fmtGapTime(g.From), fmtGapTime(g.To), math.Round((g.To-g.From)*1e3)/1e3, what, plural(len(g.Rows), "reading"), groups, est)
 }
 
 // baseGapsDocument marks the groups whose readings fell in a base gap
@@ -122,7 +128,7 @@ func baseGapsDocument(doc *report.Document, sv *survey) {
 	for _, u := range sv.baseGaps {
 		g := u.gap
 		bg := report.BaseGap{Log: u.log, From: fmtGapTime(g.From), To: fmtGapTime(g.To), Seconds: math.Round((g.To-g.From)*1e3) / 1e3,
-			Missing: g.Missing, Readings: len(g.Rows)}
+			Missing: g.Missing, BaseReadingsMissing: g.Absent, Readings: len(g.Rows)}
 		if g.Spans > 0 {
 			rms, worst := g.LineRMS, g.LineMax
 			bg.LineErrorRMS, bg.LineErrorMax = &rms, &worst
@@ -147,11 +153,11 @@ func baseGapsDocument(doc *report.Document, sv *survey) {
 					f.Position = gr.Sources[0].Point
 				}
 			}
-			why := fmt.Sprintf("base gap: %d of %d readings corrected by a straight line across %g s missing from the base record", u.counts[k], u.total[k], bg.Seconds)
+			why := fmt.Sprintf("base gap: %d of %d readings corrected by a straight line bridging %g s of the base record (%s missing; ", u.counts[k], u.total[k], bg.Seconds, plural(g.Absent, "base reading"))
 			if g.Spans > 0 {
-				why += fmt.Sprintf(" (its error about %.2g nT RMS, in no sigma)", g.LineRMS)
+				why += fmt.Sprintf("its error about %.2g nT RMS, in no sigma)", g.LineRMS)
 			} else {
-				why += " (its error in no sigma)"
+				why += "its error in no sigma)"
 			}
 			why += ": review"
 			if gr.Problem != "" {

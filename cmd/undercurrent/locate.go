@@ -82,7 +82,7 @@ var resultFiles = []string{report.FileJSON, report.FileCSV, report.FileFindings,
 
 func (o *locateOptions) setFlags(fs *pflag.FlagSet) {
 	fs.StringVar(&o.calibration, "calibration", "", "apply the sensor calibration in `CAL.json` (from undercurrent calibrate)")
-	fs.StringArrayVar(&o.bases, "base", nil, "subtract the diurnal variation recorded by the base station log `BASE` (any log format, IAGA-2002 too); give it again for a record in several files (daily observatory files across midnight UTC), joined in time order (where files overlap they must hold the same readings)")
+	fs.StringArrayVar(&o.bases, "base", nil, "subtract the diurnal variation recorded by the base station log `BASE` (any log format, IAGA-2002 too); give it again for a record in several files (daily observatory files across midnight UTC), joined in time order whatever their order here (readings at one time must agree, files that overlap must share readings there, and the level must not step where one file ends and the next begins)")
 	fs.Float64Var(&o.baseHold, "base-hold", 0, "correct survey readings up to `S` seconds before or after the base log with its nearest value held, and interpolate the base across its gaps up to S seconds long, S above or below the default (default for both: five base sample intervals, at least 60 s and at most 300 s; 0: no hold at all, and no reading missing from the base; readings further out, or in a longer gap, are refused, since a held value or a straight line across the gap is no correction)")
 	fs.StringSliceVar(&o.baseColumns, "base-column", nil, "name the base log's columns, `CANON=NAME` as --column does for the survey logs (time=Time,bx=magX,by=magY,bz=magZ); not for an IAGA-2002 base")
 	fs.StringSliceVar(&o.baseUnits, "base-unit", nil, "units of the base log's columns, `CANON=UNIT` as --unit gives them for the survey logs (bx=uT,by=uT,bz=uT); a base log whose field is as steady as the Earth's but whose median lies outside the Earth's field band in nT is refused without it")
@@ -275,12 +275,17 @@ ned" line; else east, north, up) and layout, and with
 missing values allowed. A gap in it that survey readings fall in, shorter
 than the limit (see --base-hold), is bridged by a straight line; one over
 a minute long is reported: its span, the readings and groups in it, and
-the straight line's likely error from the base record nearby; those groups
-are marked for review and not counted sound, since that error is in no
-fit's sigma (a shorter gap is only counted in the base summary). --base
-may be given more than once (daily observatory files across midnight UTC):
-the files are joined in time order; where they overlap they must hold the
-same readings. A base log whose time goes backwards (with --time-order
+the straight line's likely error from the base record nearby (of the
+components missing); those groups are marked for review and not counted
+sound, since that error is in no fit's sigma (a shorter gap is only
+counted in the base summary). --base may be given more than once (daily
+observatory files across midnight UTC): the rows of all the files are
+joined in time order, whatever the order they are given in; readings at
+one time must agree within 0.01 nT (a value missing in one is taken from
+the other), files that overlap must share readings there, and a step of
+the level where one file ends and the next begins (a logger restarted or
+moved), larger than a few nT and than the record's own change over as
+long nearby, is refused. A base log whose time goes backwards (with --time-order
 any) is put in time order, with a warning.
 Each survey log's median |B| is checked against the Earth's field (about
 22000-67000 nT at the surface, in every raw log): outside 15000-80000 nT
