@@ -319,6 +319,9 @@ func trackSummary(d *Document, t *Track) string {
 			if !one {
 				line += " at " + s.Key
 			}
+			if pc := preciseCoverOf(d, &t.Route, s); pc != "" {
+				line += ", best determined at " + pc + " m"
+			}
 		}
 	}
 	return line + "."
