@@ -17,6 +17,9 @@ type coverAt struct {
 	cover, sigma float64
 	doubt        string
 	pair         bool // a further conductor that is a go-and-return pair (Route.PairNet)
+	// precise, when not empty, gives the best determined station beside a
+	// loosely fitted shallowest one (preciseCoverOf): "T06: 0.347 ± 0.005".
+	precise string
 }
 
 // where names the station: "conductor 2 at T05 (chainage 20 m along

@@ -32,8 +32,9 @@ import (
 // carrying UnresolvedLinesNote: that note alone is common (a log read
 // without its base station's drift removed carries it on most traverses,
 // and the Kestrel Moor coating defect's true step lies between such fits).
-// The fits named are the bracketing stations (and an anomaly's own), and
-// the whole of a side when every station that sets its level is one: a
+// The fits named are the bracketing stations (and an anomaly's own; an
+// anomaly's neighbours fitted with fewer lines only when both are such
+// fits, since it is set against both), and the whole of a side when every station that sets its level is one: a
 // level with one such fit among sound ones (the demo's bend station beside
 // its earth fault) is not named. When a side's every station is one (or,
 // for an anomaly, the station itself or both its neighbours), the finding
@@ -150,6 +151,21 @@ func caveatMisfitSteps(r *route.Route, kind map[string]string) {
 		var rests bool
 		if mid >= 0 {
 			rests = bad(u[mid]) || bad(u[lo]) && bad(u[hi])
+			if !(bad(u[lo]) && bad(u[hi])) {
+				// An anomaly is set against both neighbours: one fitted
+				// with fewer lines beside a sound one that agrees with it
+				// does not explain it. On wrenbeck-dive seed 1 the
+				// anomaly was the summed split at T05 itself (a dive's
+				// start taken for two same-way lines) and the text blamed
+				// T06, a single cable 6 m down (found in review).
+				keep := look[:0]
+				for _, p := range look {
+					if p == u[mid] || kind[p.Key] != fitUnresolved {
+						keep = append(keep, p)
+					}
+				}
+				look = keep
+			}
 		} else {
 			// A step's levels: the stations of each side, from the
 			// bracket outward.

@@ -64,6 +64,18 @@ func coverFinding(run []*Placed, sev Severity, set *Settings, single bool) Findi
 			verdict, minimum, label(run[0]), run[0].Chainage, label(run[len(run)-1]), run[len(run)-1].Chainage,
 			label(low), low.Chainage, pm(c, sc))
 	}
+	if len(run) > 1 {
+		covers, sigmas, lowAt := make([]float64, len(run)), make([]float64, len(run)), 0
+		for i, p := range run {
+			covers[i], sigmas[i] = set.cover(p.Depth, p.DepthSigma)
+			if p == low {
+				lowAt = i
+			}
+		}
+		if b, ok := BestDetermined(covers, sigmas, lowAt); ok {
+			msg += fmt.Sprintf("; best determined at %s (chainage %.1f m): %s m", label(run[b]), run[b].Chainage, pm(covers[b], sigmas[b]))
+		}
+	}
 	keys := make([]string, len(run))
 	for i, p := range run {
 		keys[i] = p.Key
