@@ -608,7 +608,45 @@ func isPipe(path string) bool {
 // start, and so may read it from a pipe.
 var pipeReaders = map[string]bool{"inspect": true, "convert": true}
 
-// checkPipes refuses a pipe among the inputs of a command that reads its
+// logFlags are, for each command, the flags that name logs (read more
+// than once: a look at the columns first, then the readings); logArgs are
+// the commands whose arguments are logs. Every other input (a scenario, a
+// site file, a calibration, a coil-response table) is read once, from its
+// start, and may come from a pipe or a process substitution.
+var (
+	logFlags = map[string][]string{
+		"locate":    {"base"},
+		"calibrate": {"spin", "flip0", "flip180", "zero"},
+	}
+	logArgs = map[string]bool{"locate": true, "replay": true}
+)
+
+// logPaths returns the logs a command was given, with the flags that name
+// them and its arguments.
+func logPaths(name string, flags *pflag.FlagSet, args []string) map[string]bool {
+	in := map[string]bool{}
+	for _, n := range logFlags[name] {
+		f := flags.Lookup(n)
+		if f == nil || !f.Changed {
+			continue
+		}
+		if sa, ok := f.Value.(pflag.SliceValue); ok {
+			for _, v := range sa.GetSlice() {
+				in[v] = true
+			}
+		} else {
+			in[f.Value.String()] = true
+		}
+	}
+	if logArgs[name] {
+		for _, a := range args {
+			in[a] = true
+		}
+	}
+	return in
+}
+
+// checkPipes refuses a pipe among the logs of a command that reads its
 // logs more than once (a look at the columns first, then the readings).
 func checkPipes(name string, inputs map[string]bool) error {
 	if pipeReaders[name] {
