@@ -1020,16 +1020,13 @@ func (r *csvReader) split(carry []byte, line int) {
 			return
 		}
 		if eof {
-			keep, cerr, warn := r.cutLastLine(data, line, tail)
+			keep, warn := r.cutLastLine(data, line, tail)
 			if keep > 0 {
 				if !send(csvJob{data: data[:keep], line: line, lines: bytes.Count(data[:keep], []byte{'\n'})}) {
 					return
 				}
 			}
 			r.cutWarn = warn
-			if cerr != nil {
-				fail(cerr)
-			}
 			return
 		}
 		cut, open, plain := r.lastRecordEnd(data)

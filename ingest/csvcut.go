@@ -14,11 +14,15 @@ import (
 // has on every one of up to cutRefLines lines before it (fewer decimals, no
 // exponent where they have one, fewer digits in a column of whole numbers,
 // empty where none is, a number that stops at its point or exponent), or
-// its last group name is a shorter start of the one before, the line is
-// refused as possibly cut short, naming it; WithAllowUnterminatedStream
-// (--allow-unterminated) reads the file without it, with a warning. A last
-// line whose values are as long as the others' is read as before, line end
-// or not; so is one with no data line before it to compare with.
+// its last group name is a shorter start of the one before, the file is
+// read without that line, with a warning naming the file, line, column and
+// value. A whole line can look so (a logger that drops trailing zeros,
+// "-46901.5" after fifty values with two decimals), and refusing the file
+// for it left only --allow-unterminated, which dropped the line anyway:
+// one reading lost, said, costs less than a wrong value read or a file
+// refused; a line end after the line reads it. A last line whose values are
+// as long as the others' is read as before, line end or not; so is one
+// with no data line before it to compare with.
 
 // cutRefLines is how many data lines before the last are compared with it.
 const cutRefLines = 50
@@ -132,30 +136,29 @@ func shortValue(last []byte, refs [][]byte, group bool) string {
 
 // cutLastLine looks at data, the input's last chunk, for a last line
 // without a line end that may be cut short. keep is how much of data to
-// parse; past it is that line, left out: err refuses it, or, with
-// WithAllowUnterminatedStream, warn is the warning leaving it out (keep ==
-// len(data) when the line is read). line is the number of data's first
+// parse; past it is that line, left out, and warn is the warning leaving
+// it out (keep == len(data) when the line is read). line is the number of data's first
 // line; tail holds the input's bytes before data, for the lines before a
 // last line alone in data.
-func (r *csvReader) cutLastLine(data []byte, line int, tail []byte) (keep int, err error, warn string) {
+func (r *csvReader) cutLastLine(data []byte, line int, tail []byte) (keep int, warn string) {
 	keep = len(data)
 	if keep == 0 || data[keep-1] == '\n' {
-		return keep, nil, ""
+		return keep, ""
 	}
 	cut, open, _ := r.lastRecordEnd(data)
 	if open >= 0 {
-		return keep, nil, "" // an unterminated quote, refused as such
+		return keep, "" // an unterminated quote, refused as such
 	}
 	ln := bytes.TrimRight(data[cut+1:], "\r")
 	if r.skipped(ln) {
-		return keep, nil, ""
+		return keep, ""
 	}
 	at := line + bytes.Count(data[:cut+1], []byte{'\n'})
 	fields := splitFields(ln, r.delim, r.ws, nil)
 	if len(fields) == r.ncols+1 && len(bytes.TrimSpace(fields[r.ncols])) == 0 {
 		fields = fields[:r.ncols]
 	}
-	var why, col, text string
+	var why, col, text, whole string
 	switch {
 	case len(fields) < r.ncols:
 		why = fmt.Sprintf("has %d fields where the header has %d", len(fields), r.ncols)
@@ -169,7 +172,7 @@ func (r *csvReader) cutLastLine(data []byte, line int, tail []byte) (keep int, e
 			}
 		}
 		if u == nil {
-			return keep, nil, "" // a column not read: whatever is cut there is not read
+			return keep, "" // a column not read: whatever is cut there is not read
 		}
 		before := data[:cut+1]
 		if len(before) < cutTailBytes && len(tail) > 0 {
@@ -206,17 +209,22 @@ func (r *csvReader) cutLastLine(data []byte, line int, tail []byte) (keep int, e
 		text = string(bytes.Trim(trimField(fields[src]), " \t"))
 		how := shortValue([]byte(text), refs, u.c == cGroup)
 		if how == "" {
-			return keep, nil, ""
+			return keep, ""
 		}
 		col = r.pl.header[src]
 		why = fmt.Sprintf("its last value %s %s", quoteText(text), how)
+		whole = "; if it is whole, end the file with a line end to read it"
+		if u.c != cGroup {
+			whole = "; if it is whole (a logger that writes numbers without their trailing zeros), end the file with a line end to read it"
+		}
 	default:
-		return keep, nil, "" // a long row, refused as such
+		return keep, "" // a long row, refused as such
 	}
-	if r.cfg.allowUnterminated {
-		return cut + 1, nil, fmt.Sprintf("%s:%d: the last line has no line end and %s: left out as a line cut short (a logger or copy that stopped)", r.name, at, why)
+	where := fmt.Sprintf("%s:%d", r.name, at)
+	if col != "" {
+		where += ": column " + col
 	}
-	return cut + 1, lineErr(r.name, at, col, text, "the last line has no line end and %s: a line cut short (a logger or copy that stopped)? to read the file without it, allow an unterminated file (on the command line --allow-unterminated)", why), ""
+	return cut + 1, fmt.Sprintf("%s: the last line has no line end and %s: left out as a line cut short (a logger or copy that stopped)%s", where, why, whole)
 }
 
 // skipped tells whether a line (without its line end) holds no record: a

@@ -82,3 +82,41 @@ func TestFieldUnitsListed(t *testing.T) {
 		}
 	}
 }
+
+// TestUnreadUnitColumnStepWithBlank: a field column named with the size
+// of a count and its unit after a blank, no brackets ("bx 0.1 nT"), is not
+// read by its name (only the name's last word is taken for its unit, and
+// "bx 2 nT" may be sensor 2's bx), but the error names the column, the
+// unit its name states and how to read it; following that advice reads
+// the counts in that step without a warning that the unit given
+// contradicts the name. The values are invented: 188591 counts of 0.1 nT
+// are 18859.1 nT.
+func TestUnreadUnitColumnStepWithBlank(t *testing.T) {
+	text := "time,x,y,bx 0.1 nT,by 0.1 nT,bz 0.1 nT\n0,0,0,1205,188591,-462140\n1,1,0,1206,188592,-462144\n"
+	p := writeFile(t, "k.csv", text)
+	_, err := ReadSamples(p)
+	if err == nil {
+		t.Fatal("read without an error")
+	}
+	for _, want := range []string{
+		`k.csv:1: no column for bx, by, bz: column "bx 0.1 nT" may be bx (its name begins so) in "0.1 nT"`,
+		`--column 'bx=bx 0.1 nT' --unit 'bx=0.1 nT'`,
+		`"bx [0.1 nT]"`,
+	} {
+		if !strings.Contains(err.Error(), want) {
+			t.Errorf("error %q does not contain %q", err, want)
+		}
+	}
+	s, err := ReadSamples(p, WithColumns("bx=bx 0.1 nT", "by=by 0.1 nT", "bz=bz 0.1 nT"), WithUnits("bx=0.1 nT", "by=0.1 nT", "bz=0.1 nT"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if s.By[0] != 18859.1 || s.Bx[1] != 120.6 {
+		t.Errorf("read bx %v, by %v: want 120.5, 120.6 and 18859.1, 18859.2 nT", s.Bx, s.By)
+	}
+	for _, w := range s.Warnings {
+		if strings.Contains(w, "contradicts") {
+			t.Errorf("warning %q", w)
+		}
+	}
+}

@@ -30,10 +30,14 @@ func (p *plan) checkFieldScales(headerLine int) error {
 		if p.unitFrom[c] != UnitGiven {
 			continue
 		}
-		_, u := SplitUnit(p.header[p.src[c]])
+		name := strings.TrimSpace(p.header[p.src[c]])
+		_, u := SplitUnit(name)
 		ns, err := unitScale(kindField, u)
 		if u == "" || err != nil || ns == p.scale[c] {
 			continue
+		}
+		if g := p.unit[c]; len(name) > len(g) && strings.HasSuffix(name, g) && strings.ContainsRune(" _", rune(name[len(name)-len(g)-1])) {
+			continue // "bx 0.1 nT" given 0.1 nT: the name's whole unit
 		}
 		msg := fmt.Sprintf("the unit given for %s, %s, contradicts the unit %s in the column's name %q", canonNames[c], p.unit[c], u, p.header[p.src[c]])
 		if !same {

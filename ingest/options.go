@@ -300,11 +300,10 @@ func WithTimeOrder(o TimeOrder) Option {
 // and is an error either way. Streams that are not regular files (pipes)
 // may end without the marker after a whole message, as the format allows.
 //
-// It also reads a CSV file whose last line, without a line end, looks cut
-// short (short of a field, or its last value short of the digits that
-// column has on the lines before it): the file is read without that line,
-// and a warning names it. By default such a file is an error naming the
-// line and column.
+// A CSV file whose last line, without a line end, looks cut short (short
+// of a field, or its last value short of the digits that column has on the
+// lines before it) is read without that line, with a warning naming it,
+// with this option or without.
 func WithAllowUnterminatedStream(ok bool) Option {
 	return func(c *config) { c.allowUnterminated = ok }
 }

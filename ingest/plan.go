@@ -510,7 +510,7 @@ func (p *plan) unreadUnitColumn(missing []string, taken map[int]bool, headerLine
 			name := strings.TrimSpace(h)
 			// "bx_nT_x10" is bx in "nT_x10": try each shorter base.
 			base := name
-			for range 3 {
+			for split := range 3 {
 				b, u := SplitUnit(base)
 				if u == "" || b == "" {
 					break
@@ -530,10 +530,20 @@ func (p *plan) unreadUnitColumn(missing []string, taken map[int]bool, headerLine
 					unit = strings.TrimLeft(unit, "_ ")
 				}
 				_, err := unitScale(kindOf(c), unit)
+				mapping := m + "=" + name
+				if err == nil && split > 0 {
+					// "bx 0.1 nT", "bx_2_nT": a unit that reads, but with a
+					// blank or _ inside, which a name is not split at
+					// ("bx 2 nT" may as well be sensor 2's bx in nT).
+					given := m + "=" + unit
+					b0, u0 := SplitUnit(name)
+					return &Error{File: p.file, Line: headerLine, Batch: -1,
+						Msg: fmt.Sprintf("no column for %s: column %q may be %s (its name begins so) in %q, but only the last word of a name without brackets is taken for its unit (here %q after %q, which names no column), so it is not read by its name; if it is %s in %s, map it and give the unit (a column mapping %s and a unit option %s; on the command line --column %s --unit %s), or write the unit in brackets (%q)",
+							strings.Join(missing, ", "), name, m, unit, u0, b0, m, unit, mapping, given, shellQuote(mapping), shellQuote(given), base+" ["+unit+"]")}
+				}
 				if err == nil {
 					break // read by its name: not this column
 				}
-				mapping := m + "=" + name
 				return &Error{File: p.file, Line: headerLine, Batch: -1,
 					Msg: fmt.Sprintf("no column for %s: column %q may be %s (its name begins so), but the rest of its name is not read as a unit: %v; if it is %s, map it (a column mapping %s; on the command line --column %s), and if the rest of its name states a unit, give that too (a unit option %s=U; --unit %s=U)",
 						strings.Join(missing, ", "), name, m, err, m, mapping, shellQuote(mapping), m, m)}

@@ -191,7 +191,7 @@ func run(ctx context.Context, args []string, stdout, stderr io.Writer) int {
 	// Temporary files that a run killed outright (kill -9, a power cut)
 	// left beside this run's outputs are removed once stale.
 	removeStaleTemps(outputPaths(name, fs, fs.Args()))
-	if err := checkPipes(name, inputPaths(name, fs, fs.Args())); err != nil {
+	if err := checkPipes(name, logPaths(name, fs, fs.Args())); err != nil {
 		fmt.Fprintf(stderr, "undercurrent %s: %v\n", name, err)
 		return 1
 	}

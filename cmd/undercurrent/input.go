@@ -60,7 +60,7 @@ func (f *readFlags) add(fs *pflag.FlagSet) {
 	fs.StringVar(&f.frame, "frame", "enu", "axes of the field and position columns: enu, ned or sensor")
 	fs.StringVar(&f.origin, "origin", "first", "origin for WGS84 positions: first, mean or LAT,LON[,HEIGHT]")
 	fs.BoolVar(&f.decimalComma, "decimal-comma", false, "CSV numbers write decimals with a comma (12,5); default: detected, when the delimiter is not a comma, from the first data row with a number written with a decimal comma or point; --decimal-comma=false refuses them")
-	fs.BoolVar(&f.allowUnterminated, "allow-unterminated", false, "read an Arrow IPC stream file that stops without its end-of-stream marker, or a CSV file whose last line, without a line end, is cut short (a copy cut short or a logger or writer stopped mid-run): the rows before the cut, with a warning")
+	fs.BoolVar(&f.allowUnterminated, "allow-unterminated", false, "read an Arrow IPC stream file that stops without its end-of-stream marker (a copy cut short or a writer stopped mid-run): the rows before the cut, with a warning (a CSV file's last line that looks cut short is left out with a warning, with this flag or without)")
 	fs.StringVar(&f.timeOrder, "time-order", "ordered", "how time must run through a log: ordered, per-group (within each value of the group column: sensors or traverses logged one after another) or any")
 	fs.BoolVar(&f.iagaBaseline, "iaga-baseline-frame", false, "leave IAGA-2002 variation data (H D Z, H E Z; a base-station log too) in the observatory's baseline frame instead of turning them to geographic north by the header's DECBAS; H E Z data of other types (adjusted, definitive), which are never turned, are then read without a warning")
 }
@@ -608,7 +608,45 @@ func isPipe(path string) bool {
 // start, and so may read it from a pipe.
 var pipeReaders = map[string]bool{"inspect": true, "convert": true}
 
-// checkPipes refuses a pipe among the inputs of a command that reads its
+// logFlags are, for each command, the flags that name logs (read more
+// than once: a look at the columns first, then the readings); logArgs are
+// the commands whose arguments are logs. Every other input (a scenario, a
+// site file, a calibration, a coil-response table) is read once, from its
+// start, and may come from a pipe or a process substitution.
+var (
+	logFlags = map[string][]string{
+		"locate":    {"base"},
+		"calibrate": {"spin", "flip0", "flip180", "zero"},
+	}
+	logArgs = map[string]bool{"locate": true, "replay": true}
+)
+
+// logPaths returns the logs a command was given, with the flags that name
+// them and its arguments.
+func logPaths(name string, flags *pflag.FlagSet, args []string) map[string]bool {
+	in := map[string]bool{}
+	for _, n := range logFlags[name] {
+		f := flags.Lookup(n)
+		if f == nil || !f.Changed {
+			continue
+		}
+		if sa, ok := f.Value.(pflag.SliceValue); ok {
+			for _, v := range sa.GetSlice() {
+				in[v] = true
+			}
+		} else {
+			in[f.Value.String()] = true
+		}
+	}
+	if logArgs[name] {
+		for _, a := range args {
+			in[a] = true
+		}
+	}
+	return in
+}
+
+// checkPipes refuses a pipe among the logs of a command that reads its
 // logs more than once (a look at the columns first, then the readings).
 func checkPipes(name string, inputs map[string]bool) error {
 	if pipeReaders[name] {

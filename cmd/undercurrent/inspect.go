@@ -37,9 +37,10 @@ nT is probably in tesla). Missing values and time going backwards are
 counted here, not rejected: --time-order says how time should run (time
 going backwards between groups is then counted as allowed with
 per-group), and the gaps of a log not in time order are counted in time
-order; an Arrow IPC stream cut short is read too, as is a CSV file
-without its last line where that line is cut short, and the warning says
-whether the other commands read it (--allow-unterminated). A log without a time column (a calibration
+order; an Arrow IPC stream cut short is read too, and the warning says
+whether the other commands read it (--allow-unterminated). A CSV file's
+last line without a line end that looks cut short is left out with a
+warning, here as by the other commands. A log without a time column (a calibration
 log, which calibrate reads) is described with "time: none", without the
 sampling. The table gives each column's unit in the file
 and the unit of the values shown, after conversion: fields in nT,
@@ -303,9 +304,9 @@ func sortStrings(s []string) {
 }
 
 // unterminatedWarning matches ingest's warnings for an Arrow IPC stream
-// read without its end-of-stream marker, and for a CSV file read without
-// its last line, cut short.
-var unterminatedWarning = regexp.MustCompile(`Arrow IPC stream (stops at byte [0-9]+, .*without its end-of-stream marker|is cut short)|the last line has no line end and .*: left out as a line cut short`)
+// read without its end-of-stream marker. (A CSV file's last line cut
+// short is left out by every command alike.)
+var unterminatedWarning = regexp.MustCompile(`Arrow IPC stream (stops at byte [0-9]+, .*without its end-of-stream marker|is cut short)`)
 
 // noteUnterminated adds to the warning for an Arrow IPC stream cut short
 // (which inspect reads all the same, to describe it) whether the other
@@ -317,8 +318,6 @@ func noteUnterminated(in *ingest.Inspection, allowed bool) {
 		}
 		if allowed {
 			in.Warnings[i] = w + " (--allow-unterminated: the other commands read it too)"
-		} else if strings.Contains(w, "left out as a line cut short") {
-			in.Warnings[i] = w + "; the other commands refuse the file unless --allow-unterminated, which leaves the line out too"
 		} else {
 			in.Warnings[i] = w + "; inspect reads it regardless, but the other commands refuse it unless --allow-unterminated"
 		}

@@ -1837,6 +1837,11 @@ func baseSummary(path string, r *calibrate.BaseReport) string {
 // fileInput describes an input file with its SHA-256 (left out when the
 // file cannot be read again).
 func fileInput(role, path string, rows int) report.Input {
+	if isPipe(path) {
+		// Read once already (a calibration or coil response from a
+		// pipe): hashing it again would hash what is left, nothing.
+		return report.Input{Role: role, Path: path, Rows: rows}
+	}
 	in, err := report.NewInput(role, path, rows)
 	if err != nil {
 		return report.Input{Role: role, Path: path, Rows: rows}
