@@ -32,6 +32,15 @@ type DespikeSettings struct {
 	// cross. Along a traverse it misses spikes where the field changes
 	// fast, taking that change for noise.
 	Median bool
+	// AC says the columns are an alternating field's raw waveform in
+	// time, many readings to a cycle (an AC log, 0.5 to 2 kHz of a 50 Hz
+	// field): the readings are judged against the local quadratic alone,
+	// without FindSpikes's second look against a line current's shape
+	// (lineReview), which is a shape in distance along a traverse and
+	// says nothing of a waveform. On such logs that look took most true
+	// spikes for the waveform (of 480 spikes of 20 noise sigmas on a
+	// simulated 1 kHz log of three cores, 2 were found instead of 176).
+	AC bool
 }
 
 func (s *DespikeSettings) withDefaults() (DespikeSettings, error) {
@@ -111,7 +120,7 @@ func FindSpikes(cols [][]float64, set *DespikeSettings) (spike []bool, perCol []
 		flags[ci], scales[ci] = make([]bool, n), make([][2]float64, n)
 		trendSpikes(c, ds, flags[ci], scales[ci])
 	}
-	if len(cols) <= 3 {
+	if len(cols) <= 3 && !ds.AC {
 		lineReview(cols, flags, scales, ds)
 	}
 	for ci := range cols {

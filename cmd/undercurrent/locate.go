@@ -708,7 +708,7 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			}
 		}
 		if !o.despike {
-			w, err := spikeWarning(path, s)
+			w, err := spikeWarning(path, s, sv.ac)
 			if err != nil {
 				return nil, fmt.Errorf("%s: %w", path, err)
 			}
@@ -717,7 +717,9 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			}
 		}
 		if o.despike {
-			rep, err := calibrate.Despike(s, nil)
+			// An AC log's readings are a waveform in time, not a
+			// traverse's profile (DespikeSettings.AC).
+			rep, err := calibrate.Despike(s, &calibrate.DespikeSettings{AC: sv.ac})
 			if err != nil {
 				return nil, fmt.Errorf("%s: %w", path, err)
 			}

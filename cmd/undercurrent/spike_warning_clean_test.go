@@ -79,7 +79,7 @@ func TestSpikeWarningCleanSurveys(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			w, err := spikeWarning(k.name, s)
+			w, err := spikeWarning(k.name, s, false)
 			if err != nil {
 				t.Fatal(err)
 			}

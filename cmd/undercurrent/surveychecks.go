@@ -36,13 +36,14 @@ const spikeFraction = 1e-3
 // the whole log), and returns a warning when at least spikeFraction of
 // the readings (and at least one) are spikes; "" otherwise. A single
 // spike in a traverse of a few hundred readings, 800 nT beside a 1333 nT
-// anomaly, pulled the depth 2.8 sigma off.
-func spikeWarning(path string, s *ingest.Samples) (string, error) {
+// anomaly, pulled the depth 2.8 sigma off. ac says the log is an AC
+// waveform (calibrate.DespikeSettings.AC).
+func spikeWarning(path string, s *ingest.Samples, ac bool) (string, error) {
 	n := s.Len()
 	if n == 0 {
 		return "", nil
 	}
-	set := &calibrate.DespikeSettings{Threshold: spikeSigmas}
+	set := &calibrate.DespikeSettings{Threshold: spikeSigmas, AC: ac}
 	spikes := 0
 	for lo := 0; lo < n; {
 		hi := lo + 1
