@@ -137,28 +137,7 @@ func covFromInverse(rf []float64, n int, c []float64) bool {
 		return false
 	}
 	var inv [16 * 16]float64 // R^-1, column-major
-	var rn, in float64
-	for k := range n {
-		for i := 0; i <= k; i++ {
-			x := rf[k*n+i]
-			rn += x * x
-		}
-	}
-	for k := range n {
-		// Column k of R^-1: solve R x = e_k (x[i] = 0 for i > k).
-		x := inv[k*n : k*n+n]
-		for i := k; i >= 0; i-- {
-			var s float64
-			if i == k {
-				s = 1
-			}
-			for j := i + 1; j <= k; j++ {
-				s -= rf[j*n+i] * x[j]
-			}
-			x[i] = s / rf[i*n+i]
-			in += x[i] * x[i]
-		}
-	}
+	rn, in := triInverse(rf, n, inv[:n*n])
 	if !(rn*in < 1e-2/(rankTol*rankTol)) { // also false for NaN and Inf
 		return false
 	}
@@ -173,4 +152,34 @@ func covFromInverse(rf []float64, n int, c []float64) bool {
 		}
 	}
 	return true
+}
+
+// triInverse writes to inv (n x n, column-major) the inverse of the n x n upper
+// triangular column-major R by back substitution, column by column (its upper
+// triangle; the entries below the diagonal are left as they were), and returns the
+// squared Frobenius norms of R and of R^-1, whose product bounds the squared 2-norm
+// condition number from above.
+func triInverse(R []float64, n int, inv []float64) (rn, in float64) {
+	for k := range n {
+		for i := 0; i <= k; i++ {
+			x := R[k*n+i]
+			rn += x * x
+		}
+	}
+	for k := range n {
+		// Column k of R^-1: solve R x = e_k (x[i] = 0 for i > k).
+		x := inv[k*n : k*n+n]
+		for i := k; i >= 0; i-- {
+			var s float64
+			if i == k {
+				s = 1
+			}
+			for j := i + 1; j <= k; j++ {
+				s -= R[j*n+i] * x[j]
+			}
+			x[i] = s / R[i*n+i]
+			in += x[i] * x[i]
+		}
+	}
+	return rn, in
 }

@@ -428,28 +428,7 @@ var lmNoShortcut bool
 // ||R||_F ||R^-1||_F (R^-1, n^3/6 flops, is written to inv, n x n column-major upper
 // triangle); it reports false for a zero or non-finite diagonal too.
 func gaussNewton(R []float64, n int, qtr, y, inv []float64, mn float64) bool {
-	var rn, in float64
-	for k := range n {
-		for i := 0; i <= k; i++ {
-			x := R[k*n+i]
-			rn += x * x
-		}
-	}
-	for k := range n {
-		// Column k of R^-1: solve R x = e_k (x[i] = 0 for i > k).
-		x := inv[k*n : k*n+n]
-		for i := k; i >= 0; i-- {
-			var s float64
-			if i == k {
-				s = 1
-			}
-			for j := i + 1; j <= k; j++ {
-				s -= R[j*n+i] * x[j]
-			}
-			x[i] = s / R[i*n+i]
-			in += x[i] * x[i]
-		}
-	}
+	rn, in := triInverse(R, n, inv)
 	// kappa mn 1e-15 < 1e-4, squared; false for NaN and Inf too.
 	if !(rn*in*mn*mn < 1e22) {
 		return false
