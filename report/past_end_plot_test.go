@@ -3,7 +3,6 @@ package report
 import (
 	"bytes"
 	"math"
-	"sort"
 	"strconv"
 	"strings"
 	"testing"
@@ -12,7 +11,6 @@ import (
 	"gonum.org/v1/plot/vg/draw"
 	"gonum.org/v1/plot/vg/vgsvg"
 
-	"undercurrent/inverse"
 	"undercurrent/inverse/simulate"
 )
 
@@ -54,36 +52,7 @@ func spurEndDoc(t *testing.T, seed int) *Document {
 	if err != nil {
 		t.Fatal(err)
 	}
-	s, err := simulate.Simulate(sc)
-	if err != nil {
-		t.Fatal(err)
-	}
-	byKey := map[string]*inverse.Problem{}
-	var keys []string
-	for i := range s.Time {
-		k := s.Group[i]
-		p := byKey[k]
-		if p == nil {
-			p = &inverse.Problem{}
-			byKey[k] = p
-			keys = append(keys, k)
-		}
-		p.Points = append(p.Points, [3]float64{s.X[i], s.Y[i], s.Z[i]})
-		p.Fields = append(p.Fields, [3]float64{s.Bx[i], s.By[i], s.Bz[i]})
-	}
-	sort.Strings(keys)
-	ground := 0.0
-	var fits []Fit
-	for _, k := range keys {
-		p := byKey[k]
-		res, err := inverse.FitLines(p, &inverse.Settings{ReferenceZ: &ground})
-		fits = append(fits, Fit{Key: k, Problem: p, Result: res, Err: err, MeasuredNoise: secondDiffNoise(p.Fields)})
-	}
-	d, err := Build(Document{}, fits, &BuildSettings{})
-	if err != nil {
-		t.Fatal(err)
-	}
-	return d
+	return simulatedDoc(t, sc)
 }
 
 // TestAlongPlotsPastTheEnd: past the end of a conductor the route leaves

@@ -31,6 +31,13 @@ func scenarioDoc(t *testing.T, name string, seed int64) *Document {
 		t.Fatal(err)
 	}
 	sc.Seed = seed
+	return simulatedDoc(t, sc)
+}
+
+// simulatedDoc simulates scenario sc, fits each group's readings as locate would
+// (ground at up = 0; the measured noise from second differences) and builds the document.
+func simulatedDoc(t *testing.T, sc *simulate.Scenario) *Document {
+	t.Helper()
 	s, err := simulate.Simulate(sc)
 	if err != nil {
 		t.Fatal(err)
