@@ -1,6 +1,7 @@
 package calibrate
 
 import (
+	"fmt"
 	"math"
 	"math/rand/v2"
 	"strings"
@@ -38,7 +39,7 @@ func softIronFlipLogs(rng *rand.Rand, m [3][3]float64, o, b [3]float64, axis int
 // the two logs is o + M[:,z] Bz (simulated truth), so the x and y
 // "offsets" are off by M_xz Bz = +375 and M_yz Bz = -704 nT: the stated
 // standard errors must cover that (they were ± 0.04 nT, the scatter
-// alone), and a warning must say that the field along the flip axis is
+// alone), and a warning must say that the reading along the flip axis is
 // large and point to --spin. Flipped instead about x held at right angles
 // to the field (Bx = 0 in the sensor's frame), the coupling term is zero:
 // the offsets of y and z come out right within their scatter, the
@@ -62,8 +63,8 @@ func TestFlipOffsetAllowsForCrossAxisCoupling(t *testing.T) {
 			t.Errorf("offset[%d] = %.2f ± %.2f, true %.0f: %.0f nT off, %.1f standard errors", k, res.Offset[k], res.Sigma[k], o[k], miss, miss/res.Sigma[k])
 		}
 	}
-	if len(res.Warnings) != 1 || !strings.Contains(res.Warnings[0], "field along the flip axis z") || !strings.Contains(res.Warnings[0], "--spin") {
-		t.Errorf("warnings %q: want one on the field along the flip axis z, pointing to --spin", res.Warnings)
+	if len(res.Warnings) != 1 || !strings.Contains(res.Warnings[0], "reading along the flip axis z") || !strings.Contains(res.Warnings[0], "--spin") {
+		t.Errorf("warnings %q: want one on the reading along the flip axis z, pointing to --spin", res.Warnings)
 	}
 	if len(res.Notes) == 0 || !strings.Contains(res.Notes[0], "cross-axis coupling") {
 		t.Errorf("notes %q: want one on the cross-axis coupling allowance", res.Notes)
@@ -84,5 +85,54 @@ func TestFlipOffsetAllowsForCrossAxisCoupling(t *testing.T) {
 	}
 	if len(res.Warnings) != 0 {
 		t.Errorf("about x across the field: warnings %q", res.Warnings)
+	}
+}
+
+// TestFlipOffsetAxisOffsetNotField: a flip about z held pointing magnetic
+// east, at right angles to the field as the warning advises (sensor x
+// north, y up, z east; the Kestrel Moor field of [-420, 17600, -46900] nT
+// east, north, up from the scenario, so the field along z is -420 nT),
+// with a large offset of 6000 nT on z itself and [310, -240] on x and y
+// (simulated truth; no soft iron, so the offsets of x and y come out
+// exactly). The mean reading along z, 5580 nT, is that field plus z's
+// own offset, which the flip cannot give: the note and warning must call
+// it the reading along the flip axis and say that it holds z's offset,
+// not call it the field along the flip axis (before: "the field along
+// the flip axis z is 5580 nT", and advice to do what was done), and the
+// field across z, which the flip does measure, must be given as the
+// simulation's hypot(17600, 46900) = 50094 nT (north and up), not the
+// readings' magnitude with every offset in it (50736 nT).
+func TestFlipOffsetAxisOffsetNotField(t *testing.T) {
+	id := [3][3]float64{{1, 0, 0}, {0, 1, 0}, {0, 0, 1}}
+	o := [3]float64{310, -240, 6000}
+	b := [3]float64{17600, -46900, -420} // north, up, east in the sensor's x, y, z
+	rng := rand.New(rand.NewPCG(81, 82))
+	r0, r180 := softIronFlipLogs(rng, id, o, b, 2, 1)
+	res, err := FlipOffset(r0, r180, 2)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, k := range []int{0, 1} {
+		if miss := math.Abs(res.Offset[k] - o[k]); miss > 4*res.Scatter[k] {
+			t.Errorf("offset[%d] = %.2f (scatter %.2f), true %.0f", k, res.Offset[k], res.Scatter[k], o[k])
+		}
+	}
+	across := math.Hypot(b[0], b[1])
+	text := strings.Join(append(append([]string(nil), res.Notes...), res.Warnings...), "\n")
+	if strings.Contains(text, "field along the flip axis z is") || strings.Contains(text, "5580 nT field along") {
+		t.Errorf("the reading along z (field -420 nT plus z's offset 6000 nT) called the field along the flip axis:\n%s", text)
+	}
+	if !strings.Contains(res.Notes[0], "5580 nT reading along the flip axis z") || !strings.Contains(res.Notes[0], "z's own offset, which a flip does not give") {
+		t.Errorf("note %q: want the 5580 nT named the reading along z, with z's own offset in it", res.Notes[0])
+	}
+	want := fmt.Sprintf("the field across z is %.0f nT", across)
+	if !strings.Contains(res.Notes[0], want) {
+		t.Errorf("note %q: want %q (simulated truth)", res.Notes[0], want)
+	}
+	// 5580 nT is 11% of the 50400 nT it and the field across make: the
+	// warning stays (the flip cannot tell field from offset), worded so.
+	if len(res.Warnings) != 1 || !strings.Contains(res.Warnings[0], "reading along the flip axis z is 5580 nT") ||
+		!strings.Contains(res.Warnings[0], "if z was so held, the reading is mostly its offset") {
+		t.Errorf("warnings %q: want one naming the 5580 nT reading along z and saying it may be mostly z's offset", res.Warnings)
 	}
 }

@@ -23,8 +23,10 @@ type OffsetResult struct {
 	Scatter [3]float64
 	// Coupling is, for the flip method, the allowance in Sigma for the
 	// sensor's cross-axis coupling of the flip axis into the axes turned
-	// (FlipCouplingAllowance of the field along the flip axis), nT: flips
-	// alone cannot tell it from the offset. FlipAxisField is that field.
+	// (FlipCouplingAllowance of the reading along the flip axis), nT:
+	// flips alone cannot tell it from the offset. FlipAxisField is that
+	// reading: the field along the flip axis plus that axis's own offset,
+	// which a flip does not give.
 	Coupling      [3]float64
 	FlipAxisField float64
 	// Warnings say what the caller should show.
@@ -124,11 +126,25 @@ func FlipOffset(r0, r180 [][3]float64, axis int) (*OffsetResult, error) {
 	if err := checkFlip(m0, m1, s0, s1, axis, res); err != nil {
 		return nil, err
 	}
-	// The field along the flip axis, the same in both logs (less its own
-	// offset, small beside it and not known here).
+	// The reading along the flip axis, the same in both logs: the field
+	// there plus that axis's own offset, which a flip does not give (nor
+	// anything else in the two logs), so the allowance and the warning
+	// below use the reading. Held at right angles to the field, the axis
+	// reads its offset alone, and the allowance is then larger than the
+	// coupling term (which acts on the field, not on the offset).
 	ba := 0.5 * (m0[axis] + m1[axis])
 	res.FlipAxisField = ba
 	name := string("xyz"[axis])
+	a, b := (axis+1)%3, (axis+2)%3
+	if a > b {
+		a, b = b, a
+	}
+	// The field across the flip axis, which the flip does measure (half
+	// the change of the two axes turned, free of their offsets), and the
+	// field magnitude from it and the reading along the axis: not the
+	// mean readings' magnitude, which holds the offsets of all three.
+	across := 0.5 * math.Hypot(m0[a]-m1[a], m0[b]-m1[b])
+	f := math.Hypot(across, ba)
 	for k := range 3 {
 		if !res.Determined[k] {
 			continue
@@ -136,16 +152,11 @@ func FlipOffset(r0, r180 [][3]float64, axis int) (*OffsetResult, error) {
 		res.Coupling[k] = FlipCouplingAllowance * math.Abs(ba)
 		res.Sigma[k] = math.Hypot(res.Scatter[k], res.Coupling[k])
 	}
-	a, b := (axis+1)%3, (axis+2)%3
-	if a > b {
-		a, b = b, a
-	}
-	res.Notes = append(res.Notes, fmt.Sprintf("the offsets' standard errors take in %.0f nT for cross-axis coupling (%.0f%% of the %.0f nT field along the flip axis %s, which a flip leaves in the offsets of %s and %s: soft iron, axes not at right angles, a turn axis off the sensor's) besides the readings' scatter of ± %.2g, %.2g nT; flips alone cannot tell that coupling from an offset",
-		FlipCouplingAllowance*math.Abs(ba), 100*FlipCouplingAllowance, ba, name, string("xyz"[a]), string("xyz"[b]), res.Scatter[a], res.Scatter[b]))
-	f := math.Max(norm3(m0), norm3(m1))
+	res.Notes = append(res.Notes, fmt.Sprintf("the offsets' standard errors take in %.0f nT for cross-axis coupling (%.0f%% of the %.0f nT reading along the flip axis %s: its field, which a coupling of %s into %s and %s leaves in their offsets (soft iron, axes not at right angles, a turn axis off the sensor's), plus %s's own offset, which a flip does not give; the field across %s is %.0f nT) besides the readings' scatter of ± %.2g, %.2g nT; flips alone cannot tell that coupling from an offset",
+		FlipCouplingAllowance*math.Abs(ba), 100*FlipCouplingAllowance, ba, name, name, string("xyz"[a]), string("xyz"[b]), name, name, across, res.Scatter[a], res.Scatter[b]))
 	if math.Abs(ba) > FlipAxisWarnFraction*f {
-		res.Warnings = append(res.Warnings, fmt.Sprintf("the field along the flip axis %s is %.0f nT (%.0f%% of the %.0f nT field): a coupling of %s into %s and %s of only 0.1%% (soft iron, axes not at right angles, or the turn axis 0.06 degrees off the sensor's) adds %.0f nT to their offsets, and flips alone cannot tell it from the offset (the spread allowed, ± %.0f nT, is for 1%%); flip about an axis held at right angles to the field (horizontal, pointing magnetic east or west), where that term vanishes, or calibrate with --spin, which fits the coupling",
-			name, ba, 100*math.Abs(ba)/f, f, name, string("xyz"[a]), string("xyz"[b]), 0.001*math.Abs(ba), FlipCouplingAllowance*math.Abs(ba)))
+		res.Warnings = append(res.Warnings, fmt.Sprintf("the reading along the flip axis %s is %.0f nT (%.0f%% of the %.0f nT field it and the %.0f nT across %s make), its field plus %s's own offset, which a flip does not give: as far as it is field, a coupling of %s into %s and %s of only 0.1%% (soft iron, axes not at right angles, or the turn axis 0.06 degrees off the sensor's) adds %.0f nT to their offsets, and flips alone cannot tell it from the offset (the spread allowed, ± %.0f nT, is for 1%%); flip about an axis held at right angles to the field (horizontal, pointing magnetic east or west), where that term vanishes (if %s was so held, the reading is mostly its offset and the allowance larger than need be), or calibrate with --spin, which fits the coupling and every offset",
+			name, ba, 100*math.Abs(ba)/f, f, across, name, name, name, string("xyz"[a]), string("xyz"[b]), 0.001*math.Abs(ba), FlipCouplingAllowance*math.Abs(ba), name))
 	}
 	return res, nil
 }

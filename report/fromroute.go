@@ -47,6 +47,11 @@ func (d *Document) SetRoute(r *route.Route) {
 			if j == 0 && g.Profile != nil {
 				flipProfile(g.Profile)
 			}
+			if j == 0 && s.Phase == nil {
+				// A DC current changed sign: the no-current problem,
+				// which gives it, says so too.
+				g.Problem = turnNoCurrentHead(g.Problem, s, false)
+			}
 		}
 	}
 	sort.SliceStable(d.Groups, func(i, j int) bool {
@@ -65,9 +70,9 @@ func (d *Document) SetRoute(r *route.Route) {
 // routeOf converts the along-route analysis r into the document's Route,
 // without touching d: stations in route order with their chainage, point,
 // direction along increasing chainage and current, used when their fit is
-// sound and not taken for a magnetised object, and cover per used station
-// when the document's depth reference knows the ground (DepthBelowGround,
-// or a non-zero sensor height).
+// sound and not taken for a magnetised object, and cover per station whose
+// fit is sound (used or not) when the document's depth reference knows the
+// ground (DepthBelowGround, or a non-zero sensor height).
 func (d *Document) routeOf(r *route.Route) *Route {
 	ref := d.DepthReference
 	groundKnown := ref.Kind == DepthBelowGround || ref.SensorHeight > 0
@@ -88,7 +93,11 @@ func (d *Document) routeOf(r *route.Route) *Route {
 			ph, phs := p.Phase, p.PhaseSigma
 			s.Phase, s.PhaseSigma = &ph, &phs
 		}
-		if groundKnown && s.Used {
+		// Cover for every station whose fit is sound, an object's and one
+		// past the conductor's end as well as a used one, as results.csv
+		// and route.geojson give it beside its depth; a failed fit's
+		// station has none (withoutFailedEstimates clears its depth).
+		if groundKnown && p.OK {
 			c := p.Depth
 			if ref.Kind == DepthBelowSensors {
 				c -= ref.SensorHeight

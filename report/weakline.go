@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"slices"
+	"strings"
 
 	"gonum.org/v1/gonum/stat/distuv"
 
@@ -95,7 +96,7 @@ func lineEvidence(f *Fit, res *inverse.Result, ac bool) (drop, limit float64, ok
 // 100) reads 3 sigma in current, so the fall in chi-square (lineEvidence) says
 // which it is where it can be formed.
 func noCurrentProblem(f *Fit, res *inverse.Result, s *inverse.SourceEstimate, ac bool) string {
-	head := fmt.Sprintf("no current found: the strongest line's current, %s A, is within %.3g sigma of zero", PlusMinus(s.Current, s.CurrentSigma), currentK(ac))
+	head := noCurrentHead(s.Current, s.CurrentSigma, ac)
 	drop, limit, ok := lineEvidence(f, res, ac)
 	along := alongClause(f)
 	switch {
@@ -112,6 +113,26 @@ func noCurrentProblem(f *Fit, res *inverse.Result, s *inverse.SourceEstimate, ac
 	}
 	return head + fmt.Sprintf(", and a line lowers chi-square by only %.3g from the background alone, which noise can (up to %.3g at %d readings): no conductor is detected under this group, though one too deep or weak for these readings may lie there; its position and depth mean nothing",
 		math.Max(drop, 0), limit, len(f.Problem.Points))
+}
+
+// noCurrentHead is the start of noCurrentProblem's text, giving the
+// strongest line's current as signed along its direction. SetRoute, which
+// turns a group's lines along the route, words it again with the turned
+// sign (turnNoCurrentHead), so that the text and the group's
+// sources[0].current_a agree.
+func noCurrentHead(current, sigma float64, ac bool) string {
+	return fmt.Sprintf("no current found: the strongest line's current, %s A, is within %.3g sigma of zero", PlusMinus(current, sigma), currentK(ac))
+}
+
+// turnNoCurrentHead rewords the head of a no-current problem for a
+// strongest line s whose direction, and so its DC current's sign, was
+// just reversed (flipSource): the text had -s.Current.
+func turnNoCurrentHead(problem string, s *Source, ac bool) string {
+	old := noCurrentHead(-s.Current, s.CurrentSigma, ac)
+	if !strings.HasPrefix(problem, old) {
+		return problem
+	}
+	return noCurrentHead(s.Current, s.CurrentSigma, ac) + problem[len(old):]
 }
 
 // alongRatio is the largest ratio of the spread of a group's readings across

@@ -235,6 +235,32 @@ func TestLocateBaseGapGroupsReported(t *testing.T) {
 	if !strings.Contains(doc.BaseStation.Summary, "bridged by a straight line") {
 		t.Errorf("base summary %q does not say so", doc.BaseStation.Summary)
 	}
+	// All three components missing: Missing is left out (README: only
+	// when not all three are).
+	if bg.Missing != nil {
+		t.Errorf("gap %+v: all three components missing, want no missing list", bg)
+	}
+	// The summary line counts a group marked only for the gap as such,
+	// not as poor or ambiguous: the gap-marked groups here fit (ok, with
+	// no other problem). Before: "N sound, M poor or ambiguous", M
+	// taking in the gap-marked groups.
+	sound, gapOnly := 0, 0
+	for _, g := range doc.Groups {
+		switch {
+		case g.OK && g.Problem == "":
+			sound++
+		case g.OK && strings.HasPrefix(g.Problem, "base gap:"):
+			gapOnly++
+		}
+	}
+	if gapOnly == 0 {
+		t.Fatalf("no group marked for the gap alone: %+v", doc.Groups)
+	}
+	code, out, _ := cli(t, "locate", "--group-by", "group", "--reference-z", "0", "--base", gapped, survey)
+	want := fmt.Sprintf("%d sound, %d poor or ambiguous, %d marked for a base gap\n", sound, len(doc.Groups)-sound-gapOnly, gapOnly)
+	if code != 0 || !strings.Contains(out, want) {
+		t.Errorf("summary: exit %d, want %q in:\n%s", code, want, out)
+	}
 }
 
 // Two daily observatory files for a survey across midnight UTC, given as
@@ -242,7 +268,8 @@ func TestLocateBaseGapGroupsReported(t *testing.T) {
 // with the two files joined by hand, in either order, and every fit
 // recovers the simulated current. Before, the first --base was dropped
 // without a word and the survey was refused as not covered. Files that
-// overlap with other values, or of two stations, are refused.
+// overlap with other values, or of two stations, are refused, with exit
+// status 1 (data that cannot be used), not 2 (a usage error).
 func TestLocateBaseDailyFilesJoined(t *testing.T) {
 	day1 := ingesttest.IAGAFile(t, "bou20141101vmin.min")
 	day2 := ingesttest.IAGAFile(t, "bou20141102vmin.min")
@@ -319,7 +346,7 @@ func TestLocateBaseDailyFilesJoined(t *testing.T) {
 	code, _, stderr = cli(t, "locate", "--group-by", "group", "--reference-z", "0", "--base", both, "--base", edited, survey)
 	// The values to 0.01 nT, with the difference in H named (before:
 	// 17-digit east and north values that neither file holds).
-	if code == 0 || !strings.Contains(stderr, "overlap and disagree") || !strings.Contains(stderr, "2014-11-01T23:50:00") ||
+	if code != 1 || !strings.Contains(stderr, "overlap and disagree") || !strings.Contains(stderr, "2014-11-01T23:50:00") ||
 		!strings.Contains(stderr, "horizontal intensity +2.00 nT, vertical +0.00 nT") || strings.Contains(stderr, ".0000") {
 		t.Errorf("overlapping files that disagree: exit %d, stderr:\n%s", code, stderr)
 	}
@@ -329,7 +356,9 @@ func TestLocateBaseDailyFilesJoined(t *testing.T) {
 		t.Fatal(err)
 	}
 	code, _, stderr = cli(t, "locate", "--group-by", "group", "--reference-z", "0", "--base", day1, "--base", other, survey)
-	if code == 0 || !strings.Contains(stderr, "records of two stations") {
+	// Exit 1, input that cannot be used, as for the overlap above
+	// (before: 2, a usage error, though found only once the files are read).
+	if code != 1 || !strings.Contains(stderr, "records of two stations") || strings.Contains(stderr, "for usage") {
 		t.Errorf("two stations: exit %d, stderr:\n%s", code, stderr)
 	}
 }

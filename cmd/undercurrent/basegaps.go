@@ -7,12 +7,16 @@ import (
 
 	"undercurrent/calibrate"
 	"undercurrent/ingest"
+	"undercurrent/inverse/route"
 	"undercurrent/report"
 )
 
 // BaseGapKind is the kind of the finding about groups whose readings fell
 // in a gap of the base-station record.
 const BaseGapKind = "base-gap"
+
+// baseGapMark starts the Problem of a group marked for a base gap.
+const baseGapMark = "base gap:"
 
 // baseGapUse is a gap of the base record that readings of one survey log
 // fell in (calibrate.BaseReport.Gaps), with the groups of those readings.
@@ -153,7 +157,7 @@ func baseGapsDocument(doc *report.Document, sv *survey) {
 					f.Position = gr.Sources[0].Point
 				}
 			}
-			why := fmt.Sprintf("base gap: %d of %d readings corrected by a straight line bridging %g s of the base record (%s missing; ", u.counts[k], u.total[k], bg.Seconds, plural(g.Absent, "base reading"))
+			why := fmt.Sprintf(baseGapMark+" %d of %d readings corrected by a straight line bridging %g s of the base record (%s missing; ", u.counts[k], u.total[k], bg.Seconds, plural(g.Absent, "base reading"))
 			if g.Spans > 0 {
 				why += fmt.Sprintf("its error about %.2g nT RMS, in no sigma)", g.LineRMS)
 			} else {
@@ -187,4 +191,26 @@ func fmtGapTime(t float64) string {
 		return strings.TrimSuffix(s, ".000Z") + "Z"
 	}
 	return s
+}
+
+// baseGapOnlyGroups counts the groups not sound only because their
+// readings fell in a base gap: fitted, no poor-fit finding, and a Problem
+// that is the base-gap mark alone (baseGapsDocument adds it last, so a
+// Problem starting with it holds nothing else).
+func baseGapOnlyGroups(doc *report.Document) int {
+	poor := map[string]bool{}
+	for _, f := range doc.Findings {
+		if f.Kind == string(route.KindPoorFit) && f.Severity != string(route.SeverityInfo) {
+			for _, k := range f.Groups {
+				poor[k] = true
+			}
+		}
+	}
+	n := 0
+	for _, g := range doc.Groups {
+		if g.OK && !poor[g.Key] && strings.HasPrefix(g.Problem, baseGapMark) {
+			n++
+		}
+	}
+	return n
 }

@@ -44,13 +44,13 @@ func joinBaseLogs(parts []*ingest.Samples) (*ingest.Samples, error) {
 	for _, p := range parts[1:] {
 		a, b := first.Meta["iaga_code"], p.Meta["iaga_code"]
 		if a != "" && b != "" && !strings.EqualFold(a, b) {
-			return nil, usageErrorf("--base %s (station %s) and --base %s (station %s) are records of two stations: each departs from its own level, so joined they would put a step into the correction; give one station's files", first.Source, a, p.Source, b)
+			return nil, fmt.Errorf("--base %s (station %s) and --base %s (station %s) are records of two stations: each departs from its own level, so joined they would put a step into the correction; give one station's files", first.Source, a, p.Source, b)
 		}
 		if first.Meta["horizontal_frame"] != p.Meta["horizontal_frame"] {
-			return nil, usageErrorf("--base %s and --base %s give the horizontal field in different axes (%s against %s): give files of one kind (the same elements and data type)", first.Source, p.Source, frameName(first.Meta["horizontal_frame"]), frameName(p.Meta["horizontal_frame"]))
+			return nil, fmt.Errorf("--base %s and --base %s give the horizontal field in different axes (%s against %s): give files of one kind (the same elements and data type)", first.Source, p.Source, frameName(first.Meta["horizontal_frame"]), frameName(p.Meta["horizontal_frame"]))
 		}
 		if p.Frame != first.Frame {
-			return nil, usageErrorf("--base %s and --base %s are in different frames", first.Source, p.Source)
+			return nil, fmt.Errorf("--base %s and --base %s are in different frames", first.Source, p.Source)
 		}
 	}
 	if len(parts) > 64 {
@@ -277,7 +277,7 @@ func checkBaseJunctions(t []float64, b [3][]float64, in []uint64, names []string
 		if excess == 0 {
 			continue
 		}
-		return usageErrorf("base logs %s and %s do not join at one level: from %s to %s (%g s) the field steps by %s, where within an hour the record itself changes by at most %.2f nT over as long; a logger restarted or moved between its files reads another level, and joined the step would go into the correction as a change of the field along the survey (a bend or a current step that is not there): give one record at one level (subtract the step from one file), or correct each part of the survey with its own base file",
+		return fmt.Errorf("base logs %s and %s do not join at one level: from %s to %s (%g s) the field steps by %s, where within an hour the record itself changes by at most %.2f nT over as long; a logger restarted or moved between its files reads another level, and joined the step would go into the correction as a change of the field along the survey (a bend or a current step that is not there): give one record at one level (subtract the step from one file), or correct each part of the survey with its own base file",
 			firstOf(in[k-1]), firstOf(in[k]), fmtGapTime(t[k-1]), fmtGapTime(t[k]), math.Round(dt*1e3)/1e3, strings.Join(steps, ", "), allowed)
 	}
 	return nil

@@ -1889,8 +1889,15 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 	if doc.Signal.Mode == report.SignalAC {
 		unit = "AC windows"
 	}
-	fmt.Fprintf(w, "fitted %d group(s), %d %s, in %.2f s: %d sound, %d poor or ambiguous\n",
-		len(doc.Groups), readings, unit, took.Seconds(), ok, len(doc.Groups)-ok)
+	// A group marked only for a base gap fits well: it is counted as
+	// such, not as poor or ambiguous (the base-gap finding says why).
+	gap := baseGapOnlyGroups(doc)
+	counts := fmt.Sprintf("%d sound, %d poor or ambiguous", ok, len(doc.Groups)-ok-gap)
+	if gap > 0 {
+		counts += fmt.Sprintf(", %d marked for a base gap", gap)
+	}
+	fmt.Fprintf(w, "fitted %d group(s), %d %s, in %.2f s: %s\n",
+		len(doc.Groups), readings, unit, took.Seconds(), counts)
 	ref := "below the sensors' mean height"
 	if doc.DepthReference.Kind == report.DepthBelowGround {
 		ref = fmt.Sprintf("below the ground at up = %g m", doc.DepthReference.Z)

@@ -6,6 +6,8 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"undercurrent/report"
 )
 
 // walkAlongScenario is seven grid lines 1 m apart walked east, along a
@@ -95,5 +97,25 @@ func TestLinesWalkedAlongCable(t *testing.T) {
 	}
 	if failed == 0 {
 		t.Errorf("every group found a current: the case this test is for did not arise")
+	}
+	// A no-current group's problem gives the strongest line's current as
+	// sources[0].current_a has it, sign and all, though the line was
+	// turned along the route after the text was first worded. Before, it
+	// gave the opposite sign wherever the line was turned (L02: -0.00099
+	// in sources, "0.00099 ± 0.00052 A" in the text).
+	worded := 0
+	full, _ := locateBaseDoc(t, log) // the same run, read as report.Document
+	for _, g := range full.Groups {
+		if !strings.HasPrefix(g.Problem, "no current found") || len(g.Sources) == 0 {
+			continue
+		}
+		worded++
+		c := g.Sources[0]
+		if want := "current, " + report.PlusMinus(c.Current, c.CurrentSigma) + " A,"; !strings.Contains(g.Problem, want) {
+			t.Errorf("%s: sources[0] %g ± %g A, problem %q: want %q", g.Key, c.Current, c.CurrentSigma, g.Problem, want)
+		}
+	}
+	if worded == 0 {
+		t.Errorf("no group's problem says no current was found")
 	}
 }
