@@ -3,9 +3,7 @@ package inverse
 import (
 	"fmt"
 	"math"
-	"math/cmplx"
 	"math/rand/v2"
-	"path/filepath"
 	"testing"
 )
 
@@ -106,35 +104,7 @@ func TestGaussNewtonShortcutSameFits(t *testing.T) {
 		}
 	}
 
-	type fixture struct {
-		name string
-		p    *Problem
-		set  *Settings
-	}
-	var fx []fixture
-	for _, c := range benchCases {
-		p, err := readBenchSurvey(filepath.Join("testdata", c.file))
-		if err != nil {
-			t.Fatal(err)
-		}
-		fx = append(fx, fixture{c.file + "/mirror", p, mirrorSettings(c)}, fixture{c.file + "/auto", p, &Settings{}})
-		fx = append(fx, fixture{c.file + "/huber", p, &Settings{Count: c.set.Count, Robust: true}})
-	}
-	z0 := 0.0
-	pts := stackedTraverse()
-	f := simulate(pts, stackedLines(0, 1.0, 1.3), []float64{10, -9}, [3]float64{-300, 18000, -46000}, 1, rand.New(rand.NewPCG(2, 31)))
-	fx = append(fx, fixture{"stacked pair", &Problem{Points: pts, Fields: f}, &Settings{ReferenceZ: &z0}})
-	cur := []complex128{cmplx.Rect(10, math.Pi/6), cmplx.Rect(-9, math.Pi/6)}
-	ph := phasorReadings(pts, stackedLines(0, 1.0, 1.3), cur, 1, rand.New(rand.NewPCG(2, 37)))
-	fx = append(fx, fixture{"stacked pair AC", &Problem{Points: pts, Phasors: ph}, &Settings{ReferenceZ: &z0}})
-	side := []Line{
-		{Point: [3]float64{-2, 0, -1.0}, Dir: [3]float64{0, 1, 0}},
-		{Point: [3]float64{-0.15, 0, -1.0}, Dir: [3]float64{0, 1, 0}},
-		{Point: [3]float64{0.15, 0, -1.0}, Dir: [3]float64{0, 1, 0}},
-	}
-	survey := grid(5, 41, 2, 0.5, 0.3)
-	fs := simulate(survey, side, []float64{6, 10, -10}, [3]float64{-300, 18000, -46000}, 2, rand.New(rand.NewPCG(4, 9)))
-	fx = append(fx, fixture{"pair beside a cable", &Problem{Points: survey, Fields: fs}, &Settings{ReferenceZ: &z0}})
+	fx := sameFitFixtures(t)
 
 	for _, c := range fx {
 		t.Run(c.name, func(t *testing.T) {

@@ -18,35 +18,7 @@ import (
 // go-and-return pair beside a cable (pairOrObject, pairRank's reordering), a stacked
 // pair, AC phasors and robust reweighting.
 func TestSummaryMemoSameFits(t *testing.T) {
-	type fixture struct {
-		name string
-		p    *Problem
-		set  *Settings
-	}
-	var fx []fixture
-	for _, c := range benchCases {
-		p, err := readBenchSurvey(filepath.Join("testdata", c.file))
-		if err != nil {
-			t.Fatal(err)
-		}
-		fx = append(fx, fixture{c.file + "/mirror", p, mirrorSettings(c)}, fixture{c.file + "/auto", p, &Settings{}})
-		fx = append(fx, fixture{c.file + "/huber", p, &Settings{Count: c.set.Count, Robust: true}})
-	}
-	z0 := 0.0
-	pts := stackedTraverse()
-	f := simulate(pts, stackedLines(0, 1.0, 1.3), []float64{10, -9}, [3]float64{-300, 18000, -46000}, 1, rand.New(rand.NewPCG(2, 31)))
-	fx = append(fx, fixture{"stacked pair", &Problem{Points: pts, Fields: f}, &Settings{ReferenceZ: &z0}})
-	cur := []complex128{cmplx.Rect(10, math.Pi/6), cmplx.Rect(-9, math.Pi/6)}
-	ph := phasorReadings(pts, stackedLines(0, 1.0, 1.3), cur, 1, rand.New(rand.NewPCG(2, 37)))
-	fx = append(fx, fixture{"stacked pair AC", &Problem{Points: pts, Phasors: ph}, &Settings{ReferenceZ: &z0}})
-	side := []Line{
-		{Point: [3]float64{-2, 0, -1.0}, Dir: [3]float64{0, 1, 0}},
-		{Point: [3]float64{-0.15, 0, -1.0}, Dir: [3]float64{0, 1, 0}},
-		{Point: [3]float64{0.15, 0, -1.0}, Dir: [3]float64{0, 1, 0}},
-	}
-	survey := grid(5, 41, 2, 0.5, 0.3)
-	fs := simulate(survey, side, []float64{6, 10, -10}, [3]float64{-300, 18000, -46000}, 2, rand.New(rand.NewPCG(4, 9)))
-	fx = append(fx, fixture{"pair beside a cable", &Problem{Points: survey, Fields: fs}, &Settings{ReferenceZ: &z0}})
+	fx := sameFitFixtures(t)
 
 	defer func() { summaryMemoOff = false }()
 	for _, c := range fx {
@@ -140,4 +112,44 @@ func TestSummaryMemoGuards(t *testing.T) {
 	if weighted.cov.At(0, 0) == before.cov.At(0, 0) {
 		t.Errorf("the covariance %g is the unweighted one after the weights changed", before.cov.At(0, 0))
 	}
+}
+
+// fitFixture is a survey and settings fitted twice by the tests that check a saving
+// changes no fit (TestSummaryMemoSameFits, TestGaussNewtonShortcutSameFits).
+type fitFixture struct {
+	name string
+	p    *Problem
+	set  *Settings
+}
+
+// sameFitFixtures gives the surveys those tests fit: the benchmark surveys with the
+// scipy mirror's settings, the automatic count and Huber weights; a stacked pair, DC
+// and AC; and a go-and-return pair beside a cable (simulated, Biot-Savart).
+func sameFitFixtures(t *testing.T) []fitFixture {
+	t.Helper()
+	var fx []fitFixture
+	for _, c := range benchCases {
+		p, err := readBenchSurvey(filepath.Join("testdata", c.file))
+		if err != nil {
+			t.Fatal(err)
+		}
+		fx = append(fx, fitFixture{c.file + "/mirror", p, mirrorSettings(c)}, fitFixture{c.file + "/auto", p, &Settings{}})
+		fx = append(fx, fitFixture{c.file + "/huber", p, &Settings{Count: c.set.Count, Robust: true}})
+	}
+	z0 := 0.0
+	pts := stackedTraverse()
+	f := simulate(pts, stackedLines(0, 1.0, 1.3), []float64{10, -9}, [3]float64{-300, 18000, -46000}, 1, rand.New(rand.NewPCG(2, 31)))
+	fx = append(fx, fitFixture{"stacked pair", &Problem{Points: pts, Fields: f}, &Settings{ReferenceZ: &z0}})
+	cur := []complex128{cmplx.Rect(10, math.Pi/6), cmplx.Rect(-9, math.Pi/6)}
+	ph := phasorReadings(pts, stackedLines(0, 1.0, 1.3), cur, 1, rand.New(rand.NewPCG(2, 37)))
+	fx = append(fx, fitFixture{"stacked pair AC", &Problem{Points: pts, Phasors: ph}, &Settings{ReferenceZ: &z0}})
+	side := []Line{
+		{Point: [3]float64{-2, 0, -1.0}, Dir: [3]float64{0, 1, 0}},
+		{Point: [3]float64{-0.15, 0, -1.0}, Dir: [3]float64{0, 1, 0}},
+		{Point: [3]float64{0.15, 0, -1.0}, Dir: [3]float64{0, 1, 0}},
+	}
+	survey := grid(5, 41, 2, 0.5, 0.3)
+	fs := simulate(survey, side, []float64{6, 10, -10}, [3]float64{-300, 18000, -46000}, 2, rand.New(rand.NewPCG(4, 9)))
+	fx = append(fx, fitFixture{"pair beside a cable", &Problem{Points: survey, Fields: fs}, &Settings{ReferenceZ: &z0}})
+	return fx
 }
