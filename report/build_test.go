@@ -28,7 +28,6 @@ func kestrelMoor(t testing.TB) []Fit {
 	rng := rand.New(rand.NewPCG(45, 12))
 	az := 45 * math.Pi / 180
 	u := [3]float64{math.Sin(az), math.Cos(az), 0}
-	right := [3]float64{u[1], -u[0], 0}
 	earth := [3]float64{-310, 17900, -46300}
 	var fits []Fit
 	for i := 0; i < 8; i++ {
@@ -37,19 +36,7 @@ func kestrelMoor(t testing.TB) []Fit {
 			current = 1.4
 		}
 		p0 := [3]float64{float64(i) * spacing * u[0], float64(i) * spacing * u[1], -depth}
-		var prob inverse.Problem
-		for k := -15; k <= 15; k++ {
-			off := 0.4 * float64(k)
-			r := [3]float64{p0[0] + off*right[0], p0[1] + off*right[1], 0}
-			b := lineField(p0, u, r, current)
-			var m [3]float64
-			for a := range m {
-				m[a] = b[a]*1e9 + earth[a] + noise*rng.NormFloat64()
-			}
-			prob.Points = append(prob.Points, r)
-			prob.Fields = append(prob.Fields, m)
-		}
-		prob.Sigma = noise
+		prob := acrossLine(p0, u, current, earth, noise, rng)
 		res, err := inverse.FitLines(&prob, &inverse.Settings{Count: 1})
 		fits = append(fits, Fit{Key: fmt.Sprintf("K%d", i+1), Problem: &prob, Result: res, Err: err})
 		if err != nil {
@@ -245,4 +232,26 @@ func TestBuildDepthReferenceRounded(t *testing.T) {
 		i := strings.Index(buf.String(), `"z_m"`)
 		t.Errorf("depth reference not 0.3: %.60s", buf.String()[max(i, 0):])
 	}
+}
+
+// acrossLine simulates a traverse of 31 readings 0.4 m apart at up = 0, square to
+// the straight line through p0 along the horizontal unit u carrying current A: the
+// line's Biot-Savart field (lineField) in nT plus the Earth's field and Gaussian
+// noise of the given sigma (nT) drawn from rng. The traverse is centred over p0.
+func acrossLine(p0, u [3]float64, current float64, earth [3]float64, noise float64, rng *rand.Rand) inverse.Problem {
+	right := [3]float64{u[1], -u[0], 0}
+	var prob inverse.Problem
+	for k := -15; k <= 15; k++ {
+		off := 0.4 * float64(k)
+		r := [3]float64{p0[0] + off*right[0], p0[1] + off*right[1], 0}
+		b := lineField(p0, u, r, current)
+		var m [3]float64
+		for a := range m {
+			m[a] = b[a]*1e9 + earth[a] + noise*rng.NormFloat64()
+		}
+		prob.Points = append(prob.Points, r)
+		prob.Fields = append(prob.Fields, m)
+	}
+	prob.Sigma = noise
+	return prob
 }

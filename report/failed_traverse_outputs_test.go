@@ -26,7 +26,6 @@ func wickhamStaithe(t testing.TB, endAt int) []Fit {
 	rng := rand.New(rand.NewPCG(60, 8))
 	az := 60 * math.Pi / 180
 	u := [3]float64{math.Sin(az), math.Cos(az), 0}
-	right := [3]float64{u[1], -u[0], 0}
 	earth := [3]float64{-150, 19200, -45100}
 	var fits []Fit
 	for i := range 8 {
@@ -35,19 +34,7 @@ func wickhamStaithe(t testing.TB, endAt int) []Fit {
 			current = 0
 		}
 		p0 := [3]float64{5 * float64(i) * u[0], 5 * float64(i) * u[1], -0.9}
-		var prob inverse.Problem
-		for k := -15; k <= 15; k++ {
-			off := 0.4 * float64(k)
-			r := [3]float64{p0[0] + off*right[0], p0[1] + off*right[1], 0}
-			b := lineField(p0, u, r, current)
-			var m [3]float64
-			for a := range m {
-				m[a] = b[a]*1e9 + earth[a] + noise*rng.NormFloat64()
-			}
-			prob.Points = append(prob.Points, r)
-			prob.Fields = append(prob.Fields, m)
-		}
-		prob.Sigma = noise
+		prob := acrossLine(p0, u, current, earth, noise, rng)
 		res, err := inverse.FitLines(&prob, &inverse.Settings{Count: 1})
 		fits = append(fits, Fit{Key: fmt.Sprintf("W%d", i+1), Problem: &prob, Result: res, Err: err})
 	}
