@@ -1,8 +1,6 @@
 package main
 
 import (
-	"os"
-	"path/filepath"
 	"strings"
 	"testing"
 )
@@ -94,20 +92,6 @@ direction = [1.0, 0.0, 0.0]
 current_a = 6.0
 `
 
-// simulateScenarioText writes a scenario and simulates its log, returning the
-// log's path.
-func simulateScenarioText(t *testing.T, name, text string) string {
-	t.Helper()
-	dir := t.TempDir()
-	sc := filepath.Join(dir, name+".toml")
-	if err := os.WriteFile(sc, []byte(text), 0o644); err != nil {
-		t.Fatal(err)
-	}
-	log := filepath.Join(dir, "log.csv")
-	mustCLI(t, "simulate", sc, "-o", log)
-	return log
-}
-
 // TestThreeCoreNoFaultWarning: over the healthy three-core cable the
 // traverses that fit the cores as one go-and-return pair miss their
 // readings by hundreds of times the noise (the run's shared-misfit warning
@@ -116,7 +100,7 @@ func simulateScenarioText(t *testing.T, name, text string) string {
 // fault. The truth has no fault: no current step may be a warning, and any
 // step reported must say it rests on fits that miss their readings.
 func TestThreeCoreNoFaultWarning(t *testing.T) {
-	log := simulateScenarioText(t, "three-core", threeCoreScenario)
+	log := simulateText(t, t.TempDir(), "three-core", threeCoreScenario, ".csv")
 	doc := locateDoc(t, "--freq", "50", "--group-by", "group", log)
 	for _, f := range doc.Findings {
 		if f.Kind != "current-step" {
@@ -139,7 +123,7 @@ func TestThreeCoreNoFaultWarning(t *testing.T) {
 // truth is a constant 16 A: no current anomaly or step may be a caution or
 // a warning, and one reported must name the fits it rests on.
 func TestSideBySideNoAnomalyCaution(t *testing.T) {
-	log := simulateScenarioText(t, "side-by-side", sideBySideScenario)
+	log := simulateText(t, t.TempDir(), "side-by-side", sideBySideScenario, ".csv")
 	doc := locateDoc(t, "--reference-z", "0", "--group-by", "group", log)
 	for _, f := range doc.Findings {
 		if f.Kind != "current-step" && f.Kind != "current-anomaly" && f.Kind != "current-change" {
