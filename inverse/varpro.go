@@ -914,6 +914,30 @@ func (sp *separable) jacCols(x, _ []float64, jc []float64) error {
 	return nil
 }
 
+// jacView is jacCols without its last copy, for DC fits: Kaufman's Jacobian negated
+// lies in the derivative block after the reflections, column p at
+// dblk[p*m+g:(p+1)*m], which the LM engine reads in place (lmProblem.jacView). For AC
+// fits, whose two right-hand sides jacCols stacks, it returns nil and the engine calls
+// jacCols.
+func (sp *separable) jacView(x, _ []float64) (v []float64, stride int, neg bool, err error) {
+	if sp.nrhs != 1 {
+		return nil, 0, false, nil
+	}
+	if err := sp.evaluate(x); err != nil {
+		return nil, 0, false, err
+	}
+	np, m, g := sp.nparams(), sp.m, sp.g
+	sp.dblk = sp.scr.grow(sp.dblk, m*np)
+	sp.dPhiC(sp.dblk, np)
+	if sp.uniform() {
+		for c := range np {
+			sp.project(sp.dblk[c*m : (c+1)*m])
+		}
+	}
+	houseApplyQT(sp.a, m, g, sp.tau, sp.dblk, np)
+	return sp.dblk[g : np*m], m, true, nil
+}
+
 // problem wraps the separable model for the LM engine. A separable lent by a scratch
 // keeps its wrapper (and the method values in it, bound to the same separable) from fit
 // to fit, and its vectors come from the scratch.
@@ -926,7 +950,7 @@ func (sp *separable) problem() (*lmProblem, []float64) {
 	}
 	p := sp.lmp
 	if p == nil || sp.scr == nil {
-		p = &lmProblem{resid: sp.resid, jac: sp.jac, jacCols: sp.jacCols}
+		p = &lmProblem{resid: sp.resid, jac: sp.jac, jacCols: sp.jacCols, jacView: sp.jacView}
 		sp.lmp = p
 	}
 	p.m, p.n, p.lower, p.upper, p.work = sp.residLen(), len(x), lo, hi, sp.lmWork
