@@ -21,8 +21,8 @@ var updateFits = flag.Bool("update-fits", false, "rewrite testdata/bench_fits.tx
 const benchFitsFile = "testdata/bench_fits.txt"
 
 // benchFitValues flattens what a fit reports (the lines' geometry, currents and
-// sigmas, the background, the noise, chi-square, the covariance, the work counts) into
-// named numbers.
+// sigmas, the background, the predictions and residuals summed per axis, the noise,
+// chi-square, the covariance, the work counts) into named numbers.
 func benchFitValues(r *Result) (names []string, vals []float64) {
 	add := func(name string, v float64) { names, vals = append(names, name), append(vals, v) }
 	for i, s := range r.Sources {
@@ -45,6 +45,17 @@ func benchFitValues(r *Result) (names []string, vals []float64) {
 	for j := range 3 {
 		add("background"+strconv.Itoa(j), r.Background[j])
 		add("backgroundSigma"+strconv.Itoa(j), r.BackgroundSigma[j])
+	}
+	// The predictions and residuals per reading, summed per axis (their squares for
+	// the residuals).
+	for j := range 3 {
+		var sp, sr float64
+		for i := range r.Predicted {
+			sp += r.Predicted[i][j]
+			sr += r.Residuals[i][j] * r.Residuals[i][j]
+		}
+		add("predictedSum"+strconv.Itoa(j), sp)
+		add("residualSumSq"+strconv.Itoa(j), sr)
 	}
 	add("rms", r.RMS)
 	add("sigma", r.Sigma)
