@@ -8,10 +8,11 @@ package inverse
 var useLineKern = haveAVX2
 
 // lineColumnAVX2 is the loop of lineColumn for the first n readings at pts, n a
-// positive multiple of 4, writing 3n values at col; k is nT * k2pi.
+// positive multiple of 4, writing 3n values at col; k is nT * k2pi. finite reports
+// that every value written is finite.
 //
 //go:noescape
-func lineColumnAVX2(col, pts *float64, n int, u0, u1, u2, p00, p01, p02, k float64)
+func lineColumnAVX2(col, pts *float64, n int, u0, u1, u2, p00, p01, p02, k float64) (finite bool)
 
 // dLineLevelAVX2 is the loop of dLineLevel for the first n readings at pts, n a
 // positive multiple of 4, writing 3n values at each of the nd (2, 3 or 4) columns cs,

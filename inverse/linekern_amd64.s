@@ -49,12 +49,14 @@
 	VMOVUPD    B, 32(base)(idx*1); \
 	VMOVUPD    C, 64(base)(idx*1)
 
-// func lineColumnAVX2(col, pts *float64, n int, u0, u1, u2, p00, p01, p02, k float64)
+// func lineColumnAVX2(col, pts *float64, n int, u0, u1, u2, p00, p01, p02, k float64) (finite bool)
 //
 // The loop of lineColumn for n readings, n a positive multiple of 4: col[3i:3i+3]
 // receives the basis of the line through p0 along u at pts[i], k = nT * k2pi (the
-// constant the compiler folds in the Go loop).
-TEXT ·lineColumnAVX2(SB), NOSPLIT, $0-80
+// constant the compiler folds in the Go loop). finite reports that every value
+// written is finite: Y8 gathers by OR the bits of v - v for every value v, which is
+// +0 for a finite v and a NaN otherwise.
+TEXT ·lineColumnAVX2(SB), NOSPLIT, $0-81
 	MOVQ col+0(FP), DI
 	MOVQ pts+8(FP), SI
 	MOVQ n+16(FP), CX
@@ -68,6 +70,7 @@ TEXT ·lineColumnAVX2(SB), NOSPLIT, $0-80
 	VBROADCASTSD p01+56(FP), Y13
 	VBROADCASTSD p02+64(FP), Y14
 	VBROADCASTSD k+72(FP), Y15
+	VXORPD       Y8, Y8, Y8
 
 colLoop:
 	LOADXYZ(SI, BX, Y0, X0, Y1, X1, Y2, X2, Y3, Y4, Y5)
@@ -114,11 +117,21 @@ colLoop:
 	VSUBPD Y7, Y5, Y5
 	VMULPD Y6, Y5, Y5
 
+	// Finiteness: OR of v - v over the three outputs.
+	VSUBPD Y3, Y3, Y6
+	VSUBPD Y4, Y4, Y7
+	VORPD  Y6, Y8, Y8
+	VORPD  Y7, Y8, Y8
+	VSUBPD Y5, Y5, Y6
+	VORPD  Y6, Y8, Y8
+
 	STORE3(DI, BX, Y3, Y4, Y5, Y0, Y1, Y2)
 
 	ADDQ $96, BX
 	CMPQ BX, CX
 	JLT  colLoop
+	VPTEST Y8, Y8
+	SETEQ  finite+80(FP)
 	VZEROUPPER
 	RET
 

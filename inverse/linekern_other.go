@@ -6,7 +6,7 @@ package inverse
 // run their Go loops.
 var useLineKern = false
 
-func lineColumnAVX2(col, pts *float64, n int, u0, u1, u2, p00, p01, p02, k float64) {
+func lineColumnAVX2(col, pts *float64, n int, u0, u1, u2, p00, p01, p02, k float64) (finite bool) {
 	panic("inverse: no lineColumn kernel on this build")
 }
 

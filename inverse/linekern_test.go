@@ -80,7 +80,8 @@ func withLineKern(on bool, f func()) {
 
 // TestLineColumnKernel checks that lineColumn with the assembly kernel gives bit for bit
 // the values of its Go loop (the reference), and writes nothing past the readings'
-// rows.
+// rows; and that both report the column finite exactly when every value is (readings
+// on the line, every eleventh from the sixth, give infinities and NaNs).
 func TestLineColumnKernel(t *testing.T) {
 	if !useLineKern {
 		t.Skip("no line kernel on this build or processor")
@@ -97,10 +98,18 @@ func TestLineColumnKernel(t *testing.T) {
 				for i := range got {
 					want[i], got[i] = -7, -7
 				}
-				withLineKern(false, func() { lineColumn(want[:3*n], u, g.p0, pts) })
-				withLineKern(true, func() { lineColumn(got[:3*n], u, g.p0, pts) })
+				var finGo, finKern bool
+				withLineKern(false, func() { finGo = lineColumn(want[:3*n], u, g.p0, pts) })
+				withLineKern(true, func() { finKern = lineColumn(got[:3*n], u, g.p0, pts) })
 				if i := sameBits(got, want); i >= 0 {
 					t.Fatalf("entry %d: kernel %v (%#x), Go %v (%#x)", i, got[i], math.Float64bits(got[i]), want[i], math.Float64bits(want[i]))
+				}
+				fin := true
+				for _, v := range want[:3*n] {
+					fin = fin && !math.IsInf(v, 0) && !math.IsNaN(v)
+				}
+				if finGo != fin || finKern != fin {
+					t.Errorf("finite reported %v by the Go loop, %v by the kernel; the values are finite: %v", finGo, finKern, fin)
 				}
 			})
 		}
@@ -305,4 +314,46 @@ func appendBits(dst []uint64, v reflect.Value) []uint64 {
 		return dst
 	}
 	panic("appendBits: unexpected kind " + v.Kind().String())
+}
+
+// TestConductorThroughSensorRefused: a trial line through a reading makes the basis
+// infinite there (Biot-Savart's 1/distance), which the separable must refuse
+// (weightCheck) whether the line kernel or the Go loop wrote the column and whatever
+// the reading's place among the kernel's blocks of four; a line clear of the
+// readings is accepted.
+func TestConductorThroughSensorRefused(t *testing.T) {
+	for _, kern := range []bool{false, true} {
+		if kern && !useLineKern {
+			continue
+		}
+		for _, n := range []int{5, 8, 13} {
+			for on := range n {
+				pts := make([][3]float64, n)
+				for i := range pts {
+					pts[i] = [3]float64{float64(i) - 6, 0.5, 0.3}
+				}
+				// The line runs north through (0, 0, -1); reading on is moved onto it.
+				pts[on] = [3]float64{0, 2, -1}
+				y := make([]float64, 3*n)
+				for i := range y {
+					y[i] = float64(i%5) - 2
+				}
+				geom := []lineGeom{{n0: [3]float64{1, 0, 0}, z: -1, sLo: -10, sHi: 10, zLo: -20, zHi: 0.2, holdAz: true, holdDip: true}}
+				sp := newSeparable(pts, y, 1, BackgroundUniform, [3]float64{}, geom, nil)
+				x, _, _ := sp.pack()
+				var err error
+				withLineKern(kern, func() { err = sp.evaluate(x) })
+				if err == nil {
+					t.Errorf("kernel %v, %d readings, reading %d on the line: evaluate accepted it", kern, n, on)
+				}
+				// Moved a little off the line: accepted.
+				pts[on][0] = 0.5
+				sp = newSeparable(pts, y, 1, BackgroundUniform, [3]float64{}, geom, nil)
+				withLineKern(kern, func() { err = sp.evaluate(x) })
+				if err != nil {
+					t.Errorf("kernel %v, %d readings, reading %d off the line: %v", kern, n, on, err)
+				}
+			}
+		}
+	}
 }

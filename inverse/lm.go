@@ -21,6 +21,11 @@ type lmProblem struct {
 	// jacCols, when set, is used instead of jac: it writes the Jacobian column-major
 	// (column k is jc[k*m:(k+1)*m]). lmResult.j is then nil.
 	jacCols func(x, r, jc []float64) error
+	// jacView, when set, is tried first: it returns the Jacobian where the problem
+	// keeps it, sparing the copy into the engine's workspace. Column k is
+	// v[k*stride:k*stride+m], negated when neg; v is read until the next call. A nil v
+	// (and no error) hands the call on to jacCols.
+	jacView func(x, r []float64) (v []float64, stride int, neg bool, err error)
 	// work, when not nil, is a workspace reused from call to call (grown as needed).
 	work *[]float64
 	// lower and upper bound x elementwise when non-nil (use +-Inf for free components).
@@ -126,7 +131,21 @@ func levmar(p *lmProblem, x0 []float64, set lmSettings) (*lmResult, error) {
 		J = mat.NewDense(m, n, nil)
 	}
 	jc := take(m * n) // the Jacobian, column-major
+	// The Jacobian as read: column j is jv[j*js:j*js+m], negated when jneg (jc
+	// itself, or the problem's own storage through jacView).
+	jv, js, jneg := jc, m, false
 	evalJac := func() error {
+		jv, js, jneg = jc, m, false
+		if p.jacView != nil && !lmNoJacView {
+			v, stride, neg, err := p.jacView(x, r)
+			if err != nil {
+				return err
+			}
+			if v != nil {
+				jv, js, jneg = v, stride, neg
+				return nil
+			}
+		}
 		if p.jacCols != nil {
 			return p.jacCols(x, r, jc)
 		}
@@ -168,8 +187,12 @@ func levmar(p *lmProblem, x0 []float64, set lmSettings) (*lmResult, error) {
 		gmax := 0.0
 		rn := math.Sqrt(rss)
 		for j := range n {
-			col := jc[j*m : (j+1)*m]
+			col := jv[j*js : j*js+m]
 			cn2[j], grad[j] = dotPair(col, col, r)
+			if jneg {
+				// The sum of the negated products is the negated sum, exactly.
+				grad[j] = -grad[j]
+			}
 		}
 		for j := range n {
 			cn, g := math.Sqrt(cn2[j]), grad[j]
@@ -210,7 +233,11 @@ func levmar(p *lmProblem, x0 []float64, set lmSettings) (*lmResult, error) {
 		a := aug[:m*(nf+1)]
 		for k, j := range free {
 			col, dj := a[k*m:(k+1)*m], 1/diag[j]
-			floats.ScaleTo(col, dj, jc[j*m:(j+1)*m])
+			if jneg {
+				// (-dj) v is dj (-v), bit for bit.
+				dj = -dj
+			}
+			floats.ScaleTo(col, dj, jv[j*js:j*js+m])
 		}
 		copy(a[nf*m:], r)
 		// Only R and the first nf components of Q^T r are read: the reflectors of the
@@ -332,7 +359,10 @@ func levmar(p *lmProblem, x0 []float64, set lmSettings) (*lmResult, error) {
 				if sj == 0 {
 					continue
 				}
-				floats.AddScaled(jp, sj, jc[j*m:(j+1)*m])
+				if jneg {
+					sj = -sj // (-sj) v is sj (-v), bit for bit
+				}
+				floats.AddScaled(jp, sj, jv[j*js:j*js+m])
 			}
 			pred := rss - sumSq(jp)
 			var rssT float64
@@ -413,6 +443,10 @@ done:
 	res.x, res.r, res.rss, res.j, res.status = x, r, rss, J, status
 	return res, nil
 }
+
+// lmNoJacView makes levmar copy the Jacobian through jacCols even where the problem
+// offers jacView, as it did before the view (for tests that compare the two).
+var lmNoJacView bool
 
 // lmNoShortcut makes levmar take every step through the SVD of R, as it did before
 // the Gauss-Newton shortcut (for tests that compare the two).

@@ -909,11 +909,13 @@ func (f *fitter) report(c *candidate, scores []ModelScore) (*Result, error) {
 	if nr == 1 {
 		pr := make([][3]float64, 2*n) // one allocation for both
 		r.Predicted, r.Residuals = pr[:n:n], pr[n:]
+		// Through locals, not reloaded through r and f.prob at every reading.
+		pred, resid, fields, res := r.Predicted, r.Residuals[:n], f.prob.Fields[:n], res[:3*n]
 		for i := range n {
 			for j := range 3 {
 				e := res[3*i+j]
-				r.Residuals[i][j] = e
-				r.Predicted[i][j] = f.prob.Fields[i][j] - e
+				resid[i][j] = e
+				pred[i][j] = fields[i][j] - e
 				ss += e * e
 			}
 		}

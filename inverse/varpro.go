@@ -255,7 +255,7 @@ func (sp *separable) buildPhi(phi []float64) error {
 // fillPhi writes the weighted basis: element (row, column c) goes to phi[row*rs +
 // pos[c]*cs], or phi[row*rs + c*cs] when pos is nil; columns with pos[c] < 0 are skipped.
 func (sp *separable) fillPhi(phi []float64, rs, cs int, pos []int) error {
-	sp.fillRaw(phi, rs, cs, pos, sp.pts)
+	finite := sp.fillRaw(phi, rs, cs, pos, sp.pts)
 	col := func(c int) int {
 		if pos == nil {
 			return c
@@ -269,6 +269,7 @@ func (sp *separable) fillPhi(phi []float64, rs, cs int, pos []int) error {
 		sp.thi = sp.scr.grow(sp.thi, len(phi))
 		sp.fillRaw(sp.tlo, rs, cs, pos, sp.ptsLo)
 		sp.fillRaw(sp.thi, rs, cs, pos, sp.ptsHi)
+		finite = 0 // the path means are checked afresh
 		for c := range sp.q {
 			pc := col(c)
 			if pc < 0 {
@@ -280,11 +281,13 @@ func (sp *separable) fillPhi(phi []float64, rs, cs int, pos []int) error {
 			}
 		}
 	}
-	return sp.weightCheck(phi, rs, cs, col)
+	return sp.weightCheck(phi, rs, cs, col, finite)
 }
 
-// fillRaw writes the unweighted basis at the points pts in the layout of fillPhi.
-func (sp *separable) fillRaw(phi []float64, rs, cs int, pos []int, pts [][3]float64) {
+// fillRaw writes the unweighted basis at the points pts in the layout of fillPhi. Bit
+// pc of the result is set for a physical column pc (below 64) that the line kernel
+// wrote and found finite throughout (lineColumn).
+func (sp *separable) fillRaw(phi []float64, rs, cs int, pos []int, pts [][3]float64) (finite uint64) {
 	col := func(c int) int {
 		if pos == nil {
 			return c
@@ -296,7 +299,9 @@ func (sp *separable) fillRaw(phi []float64, rs, cs int, pos []int, pts [][3]floa
 		ln := sp.geom[l].line()
 		u, p0, off := ln.Dir, ln.Point, col(l)*cs
 		if rs == 1 {
-			lineColumn(phi[off:off+3*len(pts)], u, p0, pts)
+			if lineColumn(phi[off:off+3*len(pts)], u, p0, pts) && col(l) < 64 {
+				finite |= 1 << col(l)
+			}
 			continue
 		}
 		for i, r := range pts {
@@ -349,20 +354,25 @@ func (sp *separable) fillRaw(phi []float64, rs, cs int, pos []int, pts [][3]floa
 			}
 		}
 	}
+	return finite
 }
 
 // lineColumn writes the unweighted basis column of the line through p0 along the unit
 // vector u at the points pts (3 rows each) into col: the loop of fillRaw for a contiguous
 // column, with the vectors in scalars and no bounds checks in the loop. Where the
 // assembly kernel is in use it takes the readings four at a time (same values bit for
-// bit) and the loop does the last len(pts) mod 4.
-func lineColumn(col []float64, u, p0 [3]float64, pts [][3]float64) {
+// bit) and the loop does the last len(pts) mod 4. It reports whether every value it
+// wrote is finite (the OR of the bits of v - v, +0 for a finite v and a NaN
+// otherwise), which spares weightCheck a pass over the column.
+func lineColumn(col []float64, u, p0 [3]float64, pts [][3]float64) (finite bool) {
 	u0, u1, u2 := u[0], u[1], u[2]
 	p00, p01, p02 := p0[0], p0[1], p0[2]
+	finite = true
 	if n := min(len(pts), len(col)/3) &^ 3; n > 0 && useLineKern {
-		lineColumnAVX2(&col[0], &pts[0][0], n, u0, u1, u2, p00, p01, p02, nT*k2pi)
+		finite = lineColumnAVX2(&col[0], &pts[0][0], n, u0, u1, u2, p00, p01, p02, nT*k2pi)
 		col, pts = col[3*n:], pts[n:]
 	}
+	var bad uint64
 	for i := range pts {
 		if len(col) < 3 {
 			break
@@ -372,16 +382,17 @@ func lineColumn(col []float64, u, p0 [3]float64, pts [][3]float64) {
 		du := d0*u0 + d1*u1 + d2*u2
 		r0, r1, r2 := d0-du*u0, d1-du*u1, d2-du*u2
 		k := nT * k2pi / (r0*r0 + r1*r1 + r2*r2)
-		col[0] = k * (u1*d2 - u2*d1)
-		col[1] = k * (u2*d0 - u0*d2)
-		col[2] = k * (u0*d1 - u1*d0)
+		c0, c1, c2 := k*(u1*d2-u2*d1), k*(u2*d0-u0*d2), k*(u0*d1-u1*d0)
+		col[0], col[1], col[2] = c0, c1, c2
+		bad |= math.Float64bits(c0-c0) | math.Float64bits(c1-c1) | math.Float64bits(c2-c2)
 		col = col[3:]
 	}
+	return finite && bad == 0
 }
 
 // weightCheck applies the row weights to the written entries of phi and reports a
 // basis that is not finite (a trial conductor through a sensor or its path).
-func (sp *separable) weightCheck(phi []float64, rs, cs int, col func(int) int) error {
+func (sp *separable) weightCheck(phi []float64, rs, cs int, col func(int) int, finite uint64) error {
 	for c := range sp.q {
 		pc := col(c)
 		if pc < 0 {
@@ -391,6 +402,9 @@ func (sp *separable) weightCheck(phi []float64, rs, cs int, col func(int) int) e
 			// Contiguous column.
 			v := phi[pc*cs : pc*cs+sp.m]
 			if sp.w == nil {
+				if pc < 64 && finite&(1<<pc) != 0 {
+					continue // written finite by lineColumn
+				}
 				// The sum of squares is finite only if every entry is: then there is
 				// nothing to find (otherwise the loop below decides, as an overflow of
 				// the sum alone is no error).
@@ -914,6 +928,30 @@ func (sp *separable) jacCols(x, _ []float64, jc []float64) error {
 	return nil
 }
 
+// jacView is jacCols without its last copy, for DC fits: Kaufman's Jacobian negated
+// lies in the derivative block after the reflections, column p at
+// dblk[p*m+g:(p+1)*m], which the LM engine reads in place (lmProblem.jacView). For AC
+// fits, whose two right-hand sides jacCols stacks, it returns nil and the engine calls
+// jacCols.
+func (sp *separable) jacView(x, _ []float64) (v []float64, stride int, neg bool, err error) {
+	if sp.nrhs != 1 {
+		return nil, 0, false, nil
+	}
+	if err := sp.evaluate(x); err != nil {
+		return nil, 0, false, err
+	}
+	np, m, g := sp.nparams(), sp.m, sp.g
+	sp.dblk = sp.scr.grow(sp.dblk, m*np)
+	sp.dPhiC(sp.dblk, np)
+	if sp.uniform() {
+		for c := range np {
+			sp.project(sp.dblk[c*m : (c+1)*m])
+		}
+	}
+	houseApplyQT(sp.a, m, g, sp.tau, sp.dblk, np)
+	return sp.dblk[g : np*m], m, true, nil
+}
+
 // problem wraps the separable model for the LM engine. A separable lent by a scratch
 // keeps its wrapper (and the method values in it, bound to the same separable) from fit
 // to fit, and its vectors come from the scratch.
@@ -926,7 +964,7 @@ func (sp *separable) problem() (*lmProblem, []float64) {
 	}
 	p := sp.lmp
 	if p == nil || sp.scr == nil {
-		p = &lmProblem{resid: sp.resid, jac: sp.jac, jacCols: sp.jacCols}
+		p = &lmProblem{resid: sp.resid, jac: sp.jac, jacCols: sp.jacCols, jacView: sp.jacView}
 		sp.lmp = p
 	}
 	p.m, p.n, p.lower, p.upper, p.work = sp.residLen(), len(x), lo, hi, sp.lmWork
