@@ -47,6 +47,13 @@ type Fit struct {
 	// the refitted conductors and the object).
 	lineObject *route.Object
 	objectLine int
+	// partner is the index into Result.Opposed of the strongest line's
+	// partner core when partnerChosen (choosePartners), -1 for none;
+	// partnerOdd, when not empty, says that it lies at a spacing unlike
+	// the neighbouring groups' partners (partner.go).
+	partner       int
+	partnerChosen bool
+	partnerOdd    string
 }
 
 // BuildSettings tunes Build. A nil *BuildSettings or a zero field takes the
@@ -228,6 +235,9 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 		// Conductor 1 by position where the currents do not pick it
 		// (lead.go).
 		leadByPosition(fits, ac)
+		// The strongest line's partner core, the same along the route
+		// (partner.go).
+		choosePartners(fits, ac)
 		stations = make([]route.Station, 0, len(fits))
 		pairRoute = followsPair(fits, ac)
 		for _, f := range fits {
@@ -303,6 +313,9 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 	d.UncertaintyNote = SigmaNote
 	aloneFindings(fits, r)
 	caveatMisfitSteps(r, modelMisses(fits, &bs, rs, shared != "" || bs.Noise <= 0 && rs.MaxReducedChi2 < 0))
+	if pairRoute {
+		caveatPartnerSteps(r, fits)
+	}
 	d.SetRoute(r)
 	if d.Route != nil {
 		d.Route.PairNet = pairRoute
@@ -556,10 +569,12 @@ func followsPair(fits []Fit, ac bool) bool {
 
 // circuitOf returns the go-and-return pair that the strongest line of fit f
 // belongs to, for the route to follow: the unresolved pair holding it
-// (inverse.Result.Pairs), or the nearest line the fit resolved beside it
-// with the opposite current (inverse.Result.Opposed) whose current is
-// significant and that lies no further from it than their centre lies
-// below the readings. strict is true for an unresolved pair and for a
+// (inverse.Result.Pairs), or a line the fit resolved beside it with the
+// opposite current (inverse.Result.Opposed) whose current is significant,
+// at least minPartnerShare of the strongest's, and that lies no further
+// from it than their centre lies below the readings: the one
+// choosePartners chose (the same conductor along the route, partner.go),
+// else the one that best balances it. strict is true for an unresolved pair and for a
 // resolved one that returns at least half the current (the net current
 // at most half the stronger core's): the two cores of one circuit.
 // usable is false, and p nil, for a fit that failed or found no current.
@@ -588,16 +603,20 @@ func circuitOf(f *Fit, ac bool) (p *inverse.PairEstimate, strict, usable bool) {
 	if s0.Kind == KindDipole || !sound(s0) || NoCurrent(s0, ac) {
 		return nil, false, false
 	}
-	zc := centroid(f.Problem.Points)[2]
-	for i := range res.Opposed {
-		p := &res.Opposed[i]
-		o := &res.Sources[p.Lines[1]]
-		if o.Kind == KindDipole || !sound(o) || NoCurrent(o, ac) || !(p.Spacing <= zc-p.Point[2]) {
-			continue
-		}
-		return p, math.Abs(p.NetCurrent) <= 0.5*math.Max(math.Abs(s0.Current), math.Abs(o.Current)), true
+	var k int
+	if f.partnerChosen {
+		k = f.partner
+	} else if c := partnerCandidates(f, ac); len(c) > 0 {
+		k = c[0]
+	} else {
+		k = -1
 	}
-	return nil, false, true
+	if k < 0 || k >= len(res.Opposed) {
+		return nil, false, true
+	}
+	p = &res.Opposed[k]
+	o := &res.Sources[p.Lines[0]+p.Lines[1]] // one of them is 0, the strongest
+	return p, math.Abs(p.NetCurrent) <= 0.5*math.Max(math.Abs(s0.Current), math.Abs(o.Current)), true
 }
 
 // circuitPartner is the index of the line that the route's conductor of
@@ -746,6 +765,12 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute boo
 			st.Current, st.CurrentSigma = circ.NetCurrent, circ.NetCurrentSigma
 			st.Phase, st.PhaseSigma = circ.NetCurrentPhase, circ.NetCurrentPhaseSigma
 			st.Depth, st.DepthSigma = circ.Depth, circ.DepthSigma
+			if ws := weakBeside(f, circ, ac); len(ws) > 0 {
+				// Weak lines beside the cores, fitted here and not
+				// elsewhere: their current is the pair's (partner.go).
+				st.Current, st.CurrentSigma, st.Phase, st.PhaseSigma = netWithWeak(f, circ, ws, ac)
+				g.Notes = append(g.Notes, weakNote(f, ws))
+			}
 			st.PairNet = true
 			partner = circ.Lines[0] + circ.Lines[1]
 		} else if sw := sameWayOf(res); sw != nil && f.sumSplit {

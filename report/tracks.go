@@ -661,6 +661,9 @@ func buildTracks(fits []Fit, r *route.Route, rs *route.Settings, minStations int
 		if err != nil {
 			return nil, fmt.Errorf("report: conductor %d: %w", n, err)
 		}
+		if pairRoute {
+			caveatWeakTrackSteps(tr, fits, members, ac)
+		}
 		out = append(out, builtTrack{number: n, members: members, offset: median(off), route: tr, pair: members[0].pair != nil})
 	}
 	return out, nil

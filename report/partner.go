@@ -1,0 +1,375 @@
+package report
+
+import (
+	"fmt"
+	"math"
+	"math/cmplx"
+	"sort"
+	"strings"
+
+	"undercurrent/inverse"
+	"undercurrent/inverse/route"
+)
+
+// The partner core of a go-and-return pair whose cores the fits resolve.
+//
+// inverse lists, with each fit, the lines beside the strongest that carry
+// the opposite current (inverse.Result.Opposed), nearest first. The route
+// took the nearest of them as the strongest core's partner (circuitOf).
+// In review a small earth wire 0.48 m from the go core of a healthy 30 A /
+// 27 A pair 1 m apart, carrying 0.45 A, was fitted on some traverses and
+// not on others: where it was, it became the partner (net current 29.7 A,
+// the real return core followed as a further conductor), where it was not
+// the return core was (net 2.5 A), and the route warned of three 27 A
+// earth faults along a circuit where nothing changes. With the wire near
+// quadrature with the go core the "opposite" test itself flipped from
+// traverse to traverse, with the same result.
+//
+// The partner is now chosen as the same conductor along the route:
+//
+//   - a line carrying less than minPartnerShare of the strongest core's
+//     current is not taken as its partner (it returns too little of it to
+//     be the circuit's other core: an earth wire, a bond, a line at
+//     another phase);
+//   - among the lines left, where a fit has more than one, the one whose
+//     spacing from the strongest core is nearest the spacing of the
+//     partners chosen at the nearest other groups (each first taking the
+//     line that best balances its strongest core, the least net current);
+//     with no other group to go by, the one that best balances.
+//
+// A group whose partner (its only possible one, or the one nearest the
+// neighbours' spacing) lies at a spacing that differs from its neighbours'
+// partners' by over a quarter and three sigma (partnerOdd) is marked, and a change in net
+// current set against it is worded as resting on a change of partner and
+// reported a severity lower (caveatPartnerSteps): the net current there is
+// not the same pair's.
+
+// minPartnerShare is the least share of the strongest core's current a line
+// must carry to be taken as its partner in a go-and-return pair.
+const minPartnerShare = 0.1
+
+// partnerNeighbours is the number of nearest other groups whose partners'
+// spacing sets the spacing a group's partner is chosen by.
+const partnerNeighbours = 4
+
+// partnerCandidates returns the indices into f.Result.Opposed of the lines
+// that may be the partner of the strongest line of fit f (see above and
+// circuitOf), the best balanced (least net current) first; nil when the
+// fit failed, found no current in its strongest line, or an unresolved
+// pair holds it.
+func partnerCandidates(f *Fit, ac bool) []int {
+	res := f.Result
+	if res == nil || len(res.Sources) == 0 || !(res.Status.Converged() || res.Status == inverse.Stalled) || pairOf(res) != nil {
+		return nil
+	}
+	s0 := &res.Sources[0]
+	if s0.Kind == KindDipole || !sound(s0) || NoCurrent(s0, ac) {
+		return nil
+	}
+	zc := centroid(f.Problem.Points)[2]
+	var out []int
+	for i := range res.Opposed {
+		p := &res.Opposed[i]
+		j := p.Lines[1]
+		if p.Lines[0] != 0 {
+			j = p.Lines[0]
+		}
+		if j < 0 || j >= len(res.Sources) {
+			continue
+		}
+		o := &res.Sources[j]
+		if o.Kind == KindDipole || !sound(o) || NoCurrent(o, ac) || !(p.Spacing <= zc-p.Point[2]) {
+			continue
+		}
+		if !(math.Abs(o.Current) >= minPartnerShare*math.Abs(s0.Current)) {
+			continue
+		}
+		out = append(out, i)
+	}
+	sort.SliceStable(out, func(a, b int) bool {
+		return math.Abs(res.Opposed[out[a]].NetCurrent) < math.Abs(res.Opposed[out[b]].NetCurrent)
+	})
+	return out
+}
+
+// choosePartners sets the partner of each fit's strongest line (Fit.partner,
+// an index into Result.Opposed, -1 for none) and marks the fits whose
+// partner lies at a spacing unlike their neighbours' (Fit.partnerOdd); see
+// above. fits is changed in place: the caller passes its own copy.
+func choosePartners(fits []Fit, ac bool) {
+	cands := make([][]int, len(fits))
+	first := make([]float64, len(fits)) // spacing of the best balanced partner
+	for i := range fits {
+		fits[i].partner, fits[i].partnerChosen, fits[i].partnerOdd = -1, true, ""
+		cands[i] = partnerCandidates(&fits[i], ac)
+		if len(cands[i]) > 0 {
+			first[i] = fits[i].Result.Opposed[cands[i][0]].Spacing
+		}
+	}
+	cent := make([][3]float64, len(fits))
+	for i := range fits {
+		cent[i] = centroid(fits[i].Problem.Points)
+	}
+	for i := range fits {
+		c := cands[i]
+		if len(c) == 0 {
+			continue
+		}
+		ref, refSigma, n := neighbourSpacing(i, cands, first, fits, cent)
+		pick := c[0]
+		res := fits[i].Result
+		if n > 0 && len(c) > 1 {
+			best := math.Inf(1)
+			for _, k := range c {
+				if d := math.Abs(res.Opposed[k].Spacing - ref); d < best {
+					pick, best = k, d
+				}
+			}
+		}
+		fits[i].partner = pick
+		if n > 0 {
+			p := &res.Opposed[pick]
+			tol := math.Max(0.25*ref, 3*math.Hypot(p.SpacingSigma, refSigma))
+			if !(math.Abs(p.Spacing-ref) <= tol) {
+				fits[i].partnerOdd = fmt.Sprintf("%s pairs conductor 1 with a line %.2g m from it, its neighbours with one %.2g m from it", fits[i].Key, p.Spacing, ref)
+			}
+		}
+	}
+}
+
+// neighbourSpacing returns the median spacing of the best balanced partners
+// (first) of the partnerNeighbours groups nearest group i (by their
+// readings' centres in plan) that have one, with the largest spacing
+// sigma among them, and how many there were.
+func neighbourSpacing(i int, cands [][]int, first []float64, fits []Fit, cent [][3]float64) (ref, sigma float64, n int) {
+	type nb struct {
+		j int
+		d float64
+	}
+	var nbs []nb
+	for j := range fits {
+		if j == i || len(cands[j]) == 0 {
+			continue
+		}
+		nbs = append(nbs, nb{j, math.Hypot(cent[i][0]-cent[j][0], cent[i][1]-cent[j][1])})
+	}
+	sort.SliceStable(nbs, func(a, b int) bool { return nbs[a].d < nbs[b].d })
+	if len(nbs) > partnerNeighbours {
+		nbs = nbs[:partnerNeighbours]
+	}
+	if len(nbs) == 0 {
+		return 0, 0, 0
+	}
+	sp := make([]float64, len(nbs))
+	for k, b := range nbs {
+		sp[k] = first[b.j]
+		sigma = math.Max(sigma, fits[b.j].Result.Opposed[cands[b.j][0]].SpacingSigma)
+	}
+	return median(sp), sigma, len(nbs)
+}
+
+// caveatPartnerSteps words the changes in net current of the pair route r
+// set against a group whose partner core lies at a spacing unlike its
+// neighbours' (Fit.partnerOdd), and reports them a severity lower: the net
+// current there may be another pair's.
+func caveatPartnerSteps(r *route.Route, fits []Fit) {
+	odd := map[string]string{}
+	for i := range fits {
+		if fits[i].partnerOdd != "" {
+			odd[fits[i].Key] = fits[i].partnerOdd
+		}
+	}
+	caveatStepsAt(r, odd, func(why []string) string {
+		return "; it rests on a change of the core paired with conductor 1 (" + strings.Join(why, "; ") +
+			"), so the net current may be another pair's rather than current leaving or joining the circuit"
+	})
+}
+
+// caveatWeakTrackSteps words the changes in current of track tr, a further
+// conductor of the pair route, set against a group where its line is one
+// the pair's net current takes in (weakBeside), and reports them a
+// severity lower: such a line's current trades with the cores' in the fit
+// (the earth wire of the review read 0.19 to 0.58 A for 0.45 A, its sigmas
+// 0.03 to 0.12 A), and where it is not fitted its current is in theirs.
+func caveatWeakTrackSteps(tr *route.Route, fits []Fit, members []trackSource, ac bool) {
+	weak := map[string]string{}
+	for _, m := range members {
+		f := &fits[m.fit]
+		circ, _, _ := circuitOf(f, ac)
+		if circ == nil {
+			continue
+		}
+		for _, j := range weakBeside(f, circ, ac) {
+			if j == m.source {
+				weak[f.Key] = f.Key
+			}
+		}
+	}
+	caveatStepsAt(tr, weak, func(keys []string) string {
+		return "; it rests on " + keyList(keys) + ", where this is a weak line beside conductor 1's go-and-return pair whose current the fit trades with the cores' (it is counted in the pair's net current), so it may be the fit's error rather than a change in current"
+	})
+}
+
+// caveatStepsAt appends to each current step, change or anomaly of r whose
+// bracketing stations (an anomaly's own station) include a key of flagged
+// the text words gives for their flagged values, and reports it a severity
+// lower.
+func caveatStepsAt(r *route.Route, flagged map[string]string, words func([]string) string) {
+	if r == nil || len(flagged) == 0 {
+		return
+	}
+	demoted := false
+	for fi := range r.Findings {
+		f := &r.Findings[fi]
+		if f.Kind != route.KindCurrentStep && f.Kind != route.KindCurrentChange && f.Kind != route.KindCurrentAnomaly || len(f.Keys) == 0 {
+			continue
+		}
+		look := []string{f.Keys[0], f.Keys[len(f.Keys)-1]}
+		if f.Kind == route.KindCurrentAnomaly && len(f.Keys) == 3 {
+			look = []string{f.Keys[1]}
+		}
+		var why []string
+		seen := map[string]bool{}
+		for _, k := range look {
+			if w, ok := flagged[k]; ok && !seen[k] {
+				why = append(why, w)
+				seen[k] = true
+			}
+		}
+		if len(why) == 0 {
+			continue
+		}
+		f.Message += words(why)
+		if f.Severity != route.SeverityInfo {
+			f.Message += " (reported a severity lower for it)"
+			if f.Severity == route.SeverityWarning {
+				f.Severity = route.SeverityCaution
+			} else {
+				f.Severity = route.SeverityInfo
+			}
+			demoted = true
+		}
+	}
+	if demoted {
+		// Findings are sorted by chainage, the most pressing first at
+		// equal chainage (route.Build).
+		sort.SliceStable(r.Findings, func(i, j int) bool {
+			a, b := &r.Findings[i], &r.Findings[j]
+			if a.From != b.From {
+				return a.From < b.From
+			}
+			return severityRank(string(a.Severity)) < severityRank(string(b.Severity))
+		})
+	}
+}
+
+// The net current of a resolved pair with a weak line beside it.
+//
+// A weak line beside a pair's cores (an earth wire, a bond) is fitted on
+// some traverses and not on others. Where it is not, its current goes into
+// the cores' (the field far from the lines is set by their total current,
+// which the fit keeps): in review a 0.45 A wire 0.48 m from the go core of
+// a 30 A / 27 A pair read the go core 29.755 A and the return 27.226 A
+// where it was not fitted, the pair's net current 2.53 A, and 2.77 to
+// 3.13 A where it was, with the wire's 0.19 to 0.58 A apart; the route
+// warned of 0.2 to 0.9 A earth faults along a healthy circuit. The sum of
+// the pair and the wire read 2.55 A at every traverse. So the route's net
+// current of a resolved pair takes in the lines beside it that are too
+// weak to be its partner (under minPartnerShare of the strongest core's
+// current) and lie no further from the pair's centre than its spacing
+// (weakBeside), with a note on the group.
+
+// weakBeside returns the lines of fit f, other than the pair p's own,
+// that carry a current the fit finds, under minPartnerShare of its
+// strongest line's, and lie no further from p's centre line than the
+// pair's spacing.
+func weakBeside(f *Fit, p *inverse.PairEstimate, ac bool) []int {
+	res := f.Result
+	if p == nil || !(p.Spacing > 0) || len(res.Sources) == 0 {
+		return nil
+	}
+	i0 := math.Abs(res.Sources[0].Current)
+	var out []int
+	for j := range res.Sources {
+		o := &res.Sources[j]
+		if j == p.Lines[0] || j == p.Lines[1] || o.Kind == KindDipole || !sound(o) || NoCurrent(o, ac) {
+			continue
+		}
+		if !(math.Abs(o.Current) < minPartnerShare*i0) {
+			continue
+		}
+		if math.Abs(math.Remainder(o.Azimuth-p.Azimuth, 180)) > 10 {
+			continue // not running beside the pair (as inverse's opposedMaxAngle)
+		}
+		if pointToLine(o.Point, p.Point, unit(p.Dir)) <= p.Spacing {
+			out = append(out, j)
+		}
+	}
+	return out
+}
+
+// unit returns v scaled to unit length (v itself when it is zero).
+func unit(v [3]float64) [3]float64 {
+	n := math.Sqrt(v[0]*v[0] + v[1]*v[1] + v[2]*v[2])
+	if n == 0 {
+		return v
+	}
+	return [3]float64{v[0] / n, v[1] / n, v[2] / n}
+}
+
+// netWithWeak returns the net current of pair p of fit f along p.Dir with
+// the currents of the lines ws (weakBeside) added, and its sigma, with
+// the phase and its sigma for AC (degrees). The sigmas of the pair's net
+// current and of the lines are added in quadrature: the fit's covariance
+// makes the sum better known than that (the lines trade current with the
+// cores), so the sigma is on the safe side.
+func netWithWeak(f *Fit, p *inverse.PairEstimate, ws []int, ac bool) (cur, sigma, phase, phaseSigma float64) {
+	res := f.Result
+	d := unit(p.Dir)
+	if !ac {
+		cur, v := p.NetCurrent, p.NetCurrentSigma*p.NetCurrentSigma
+		for _, j := range ws {
+			o := &res.Sources[j]
+			od := unit(o.Dir)
+			s := 1.0
+			if od[0]*d[0]+od[1]*d[1]+od[2]*d[2] < 0 {
+				s = -1
+			}
+			cur += s * o.Current
+			v += o.CurrentSigma * o.CurrentSigma
+		}
+		return cur, math.Sqrt(v), 0, 0
+	}
+	rad := math.Pi / 180
+	sum := cmplx.Rect(p.NetCurrent, p.NetCurrentPhase*rad)
+	v := p.NetCurrentSigma * p.NetCurrentSigma
+	vt := math.Pow(p.NetCurrent*p.NetCurrentPhaseSigma*rad, 2) // across the phasor
+	for _, j := range ws {
+		o := &res.Sources[j]
+		od := unit(o.Dir)
+		w := cmplx.Rect(o.Current, o.Phase*rad)
+		if od[0]*d[0]+od[1]*d[1]+od[2]*d[2] < 0 {
+			w = -w
+		}
+		sum += w
+		v += o.CurrentSigma * o.CurrentSigma
+		vt += o.CurrentSigma*o.CurrentSigma + math.Pow(o.Current*o.PhaseSigma*rad, 2)
+	}
+	cur = cmplx.Abs(sum)
+	phase = cmplx.Phase(sum) / rad
+	phaseSigma = 180
+	if cur > 0 {
+		phaseSigma = math.Min(180, math.Sqrt(vt)/cur/rad)
+	}
+	return cur, math.Sqrt(v), phase, phaseSigma
+}
+
+// weakNote words the note of a group whose pair's net current takes in
+// the weak lines ws beside it (netWithWeak).
+func weakNote(f *Fit, ws []int) string {
+	var names []string
+	for _, j := range ws {
+		names = append(names, fmt.Sprintf("line %d (%.3g A)", j+1, math.Abs(f.Result.Sources[j].Current)))
+	}
+	return fmt.Sprintf("the pair's net current, as the route takes it, includes %s beside the pair, too weak to be a core of it (under %g%% of the strongest line's current): where such a line is not fitted its current goes into the cores'", keyList(names), 100*minPartnerShare)
+}
