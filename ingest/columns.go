@@ -91,6 +91,16 @@ var aliases = map[string]int{
 	"temperature": cTemp,
 	"latitude":    cLat, "lng": cLon, "long": cLon, "longitude": cLon,
 	"alt": cHeight, "altitude": cHeight, "elevation": cHeight, "ellipsoidal_height": cHeight,
+	// Heights as GNSS receivers and their exports name them: above the
+	// ellipsoid, or above the geoid (mean sea level), which differs from
+	// it by the geoid's separation, nearly constant across a site (the
+	// local east, north, up positions are then right; the origin's height
+	// is off by that separation).
+	"ellipsoid_height": cHeight, "ellipsoid height": cHeight, "ellipsoidal height": cHeight,
+	"height_ellipsoid": cHeight, "height above ellipsoid": cHeight, "height_above_ellipsoid": cHeight,
+	"hae": cHeight, "orthometric_height": cHeight, "orthometric height": cHeight,
+	"height_msl": cHeight, "msl_height": cHeight, "alt_msl": cHeight, "altitude_msl": cHeight,
+	"elev": cHeight, "ele": cHeight,
 	// A map grid's coordinates are east and north in metres (or the unit
 	// their suffix gives): "Easting (m)", "northing_ft".
 	"easting": cX, "northing": cY,

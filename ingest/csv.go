@@ -229,7 +229,7 @@ func newCSVReader(name string, rd io.Reader, cfg *config) (*csvReader, error) {
 	}
 	r.decComma = cfg.decimalComma > 0 || (cfg.decimalComma == 0 && r.delim != ',' && r.firstRecordDecimalComma())
 	if r.decComma && r.delim == ',' && !r.ws {
-		return nil, fileErr(name, nil, "decimal commas need a delimiter other than the comma")
+		return nil, fileErr(name, nil, "decimal commas need a delimiter other than the comma (in a comma-delimited file they are not read, quoted or not): save the file again with ';' as the delimiter, or with decimal points")
 	}
 	if r.decComma {
 		pl.meta["decimal_separator"] = ","
@@ -688,6 +688,13 @@ func unquote(f []byte) []byte {
 	return f
 }
 
+// quotedField reports whether the raw field f is written in quotes
+// (blanks around them aside).
+func quotedField(f []byte) bool {
+	f = bytes.TrimLeft(f, " \t")
+	return len(f) >= 2 && f[0] == '"'
+}
+
 func trimField(f []byte) []byte {
 	for len(f) > 0 && (f[0] == ' ' || f[0] == '\t') {
 		f = f[1:]
@@ -847,10 +854,19 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch, plain bool) 
 					if u.c == cTime {
 						what = "is not a number or an RFC 3339 time" + timeHint(t)
 					}
-					if r.decComma {
+					switch {
+					case r.decComma && bytes.IndexByte(t, '.') >= 0:
+						// Only a point the setting rejects: "+0200" or a
+						// word held none, and the hint sent the user
+						// after one.
 						what += " (the file is read with decimal commas, so a point is not a decimal point)"
-					} else if r.delim != ',' && bytes.IndexByte(t, ',') >= 0 {
+					case r.decComma:
+					case r.delim != ',' && bytes.IndexByte(t, ',') >= 0:
 						what += " (a decimal comma? read the file with decimal commas: " + decimalCommaOption + ")"
+					case r.delim == ',' && quotedField(fields[u.src]) && decimalCommaText(t):
+						// "0,25" quoted in a comma-delimited file, as some
+						// locales' spreadsheets save CSV: no hint was given.
+						what += " (a decimal comma inside quotes, as spreadsheets in some locales save CSV? decimal commas are read only in files whose delimiter is not the comma: save the file again with ';' as the delimiter, or with decimal points)"
 					}
 					if _, err := unitScale(kindOf(u.c), string(t)); err == nil && len(t) > 0 {
 						what += " (a row of units under the header? make it a comment line, starting with the comment prefix, or delete it)"

@@ -172,12 +172,20 @@ var timeLayouts = []struct {
 	{"2006-01-02 15:04:05.999999999Z07:00", true},
 	{"2006-01-02 15:04:05.999999999", false},
 	{"2006-01-02T15:04Z07:00", true},
+	// ISO 8601's other forms of the UTC offset, as strftime's %z and
+	// many loggers write it: ±hhmm (basic) and ±hh. RFC 3339 allows
+	// only ±hh:mm; these were refused.
+	{"2006-01-02T15:04:05.999999999Z0700", true},
+	{"2006-01-02 15:04:05.999999999Z0700", true},
+	{"2006-01-02T15:04:05.999999999Z07", true},
+	{"2006-01-02 15:04:05.999999999Z07", true},
 	{"2006-01-02 15:04", false},
 	{"2006-01-02", false},
 }
 
 // parseTimestamp parses an RFC 3339 timestamp (or the same with a space for
-// the T, or without a zone, taken as UTC) into Unix seconds.
+// the T, with an ISO 8601 offset ±hhmm or ±hh, or without a zone, taken
+// as UTC) into Unix seconds.
 func parseTimestamp(b []byte) (float64, bool) {
 	v, _, ok := parseTimestampZone(b)
 	return v, ok

@@ -478,6 +478,9 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 	if p.hasPos && !p.geodetic {
 		p.notePositionsAbsent(carried)
 	}
+	if p.geodetic && p.src[cHeight] < 0 {
+		p.noteHeightAbsent()
+	}
 	for c := 0; c < nOut; c++ {
 		if p.src[c] >= 0 || (c >= cX && c <= cZ && p.hasPos) || (c == cTime && p.noTime) {
 			p.out = append(p.out, c)

@@ -206,6 +206,28 @@ func (p *plan) notePositionsAbsent(carried []string) {
 	}
 }
 
+// noteHeightAbsent warns about a log with latitude and longitude but no
+// height column: every reading is placed at height 0 on the WGS84
+// ellipsoid, so z follows the ellipsoid (the Earth's curvature), not the
+// ground the sensor was carried over, and on a slope the fits are those of
+// positions that are not the readings'. The local-positions branch warns
+// so about a missing z (notePositionsAbsent); a height column under a
+// name not read (such as "antenna_height_m") was dropped without a word.
+func (p *plan) noteHeightAbsent() {
+	var unread []string
+	for i, h := range p.header {
+		if !p.uses(i) {
+			unread = append(unread, h)
+		}
+	}
+	others := "none"
+	if len(unread) > 0 {
+		others = columnList(unread)
+	}
+	p.warn("%s: no column for height beside latitude and longitude: every reading is placed at height 0 on the WGS84 ellipsoid, so z follows the ellipsoid, not the ground (columns not read: %s); if one of them is the height, give it with a column mapping such as height=NAME, on the command line --column height=NAME (and its unit, such as --unit height=ft, if it is not metres)",
+		p.file, others)
+}
+
 // allPositionWords reports whether s is made of position words only
 // ("pos" in "x_pos"), not a unit.
 func allPositionWords(s string) bool {

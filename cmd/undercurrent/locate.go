@@ -421,6 +421,7 @@ func progressOn(stderr io.Writer) io.Writer {
 // group is the readings of one group, ready to fit.
 type group struct {
 	key     string
+	from    string // the log of its first reading
 	points  [][3]float64
 	fields  [][3]float64    // DC
 	stamps  []float64       // DC: each reading's time, s (NaN when the log has none)
@@ -665,6 +666,13 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		if o.groupBy != "" && s.Group == nil {
 			return nil, fmt.Errorf("%s has no column %q to group by (see \"undercurrent inspect %s\" for its columns)", path, o.groupBy, path)
 		}
+		if o.groupBy != "" {
+			// A traverse name used again in another log for another
+			// traverse (loggroups.go).
+			if w := separateReusedGroups(index, path, logs, s); w != "" {
+				sv.alerts = append(sv.alerts, w)
+			}
+		}
 		if w, err := sv.sameOrigin(o, s); err != nil {
 			return nil, err
 		} else if w != "" {
@@ -779,6 +787,11 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 	}
 	if base != nil {
 		doc.BaseStation = &report.Correction{File: o.base, Summary: strings.Join(baseNotes, "; ")}
+	}
+	// Several logs: the groups in time order, not the order of the files
+	// given (loggroups.go).
+	if w := orderGroupsByTime(sv, logs); w != "" {
+		sv.warnings = append(sv.warnings, w)
 	}
 	if o.coil.on() {
 		doc.Calibration = o.coil.correction(doc.Signal.FrequencyHz)
@@ -1241,7 +1254,7 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 		}
 		g := index[key]
 		if g == nil {
-			g = &group{key: key}
+			g = &group{key: key, from: s.Source}
 			index[key] = g
 			sv.groups = append(sv.groups, g)
 		}
@@ -1921,7 +1934,13 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 			dw = max(dw, 1+utf8.RuneCountInString(dep))
 		}
 	}
-	fmt.Fprintf(w, "%-8s %10s %*s %*s %9s", "group", "chainage", cw, "current (A)", dw, "depth (m)", "rms (nT)")
+	// The group column widens to the widest name (a group named after
+	// its log, "pb.csv:T01", loggroups.go).
+	kw := 8
+	for _, g := range doc.Groups {
+		kw = max(kw, utf8.RuneCountInString(g.Key))
+	}
+	fmt.Fprintf(w, "%-*s %10s %*s %*s %9s", kw, "group", "chainage", cw, "current (A)", dw, "depth (m)", "rms (nT)")
 	if tracks {
 		// Which conductor along the route each source belongs to: 1 is the
 		// route's own, 2, 3, ... the further ones followed (doc.Conductors).
@@ -1944,7 +1963,7 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 			rms = "-"
 		}
 		if len(g.Sources) == 0 {
-			fmt.Fprintf(w, "%-8s %10s %*s %*s %9s  %s\n", key, ch, cw, "-", dw, "-", rms, g.Problem)
+			fmt.Fprintf(w, "%-*s %10s %*s %*s %9s  %s\n", kw, key, ch, cw, "-", dw, "-", rms, g.Problem)
 			continue
 		}
 		for i, s := range g.Sources {
@@ -1974,7 +1993,7 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 				}
 				note = fmt.Sprintf(" %9s", c) + note
 			}
-			fmt.Fprintf(w, "%-8s %10s %*s %*s %9s%s\n", k, ch, cw, cur, dw, dep, rms, note)
+			fmt.Fprintf(w, "%-*s %10s %*s %*s %9s%s\n", kw, k, ch, cw, cur, dw, dep, rms, note)
 		}
 	}
 	if doc.Route != nil && doc.Route.PairNet {
