@@ -38,7 +38,16 @@ type Window struct {
 	Travel [3]float64
 	B      [3]complex128 // complex RMS field per axis, nT
 	Sigma  [3]float64    // one-sigma of |B| per axis from the fit residuals, nT
-	Freq   float64       // Hz used (given or estimated)
+	// Slope is the rate of change of B per axis across the window, nT/s
+	// (the phasor of the columns (τ-τ̄) cos ωτ and (τ-τ̄) sin ωτ,
+	// DemodSettings.ConstantAmplitude, referenced like B): what the field
+	// changes by as the sensor walks, or as the current changes. Zero
+	// with ConstantAmplitude.
+	Slope [3]complex128
+	// Curve is the second derivative of B per axis, nT/s² (twice the
+	// phasor of the curvature columns); zero with ConstantAmplitude.
+	Curve [3]complex128
+	Freq  float64 // Hz used (given or estimated)
 	// FreqSigma is the one-sigma of an estimated Freq, Hz:
 	// (Σ_k q_k/s_k²)^(-1/2)/2π over the axes k, with s_k² the residual
 	// variance of axis k (n - p - 1 degrees of freedom) and q_k its
@@ -1204,6 +1213,11 @@ func (d *demodulator) window(lo, hi int) error {
 		w.Sigma[k] = math.Sqrt(v / 2) // RMS scale
 		for j, h := range set.Harmonics {
 			harm[j][k] = localToAbsolute(beta[3+2*j], beta[4+2*j], w.Freq, t0, h)
+		}
+		if tpl.slope {
+			q := slopeStart(set.Harmonics, set.Drift)
+			w.Slope[k] = localToAbsolute(beta[q], beta[q+1], w.Freq, t0, 1)
+			w.Curve[k] = 2 * localToAbsolute(beta[q+2], beta[q+3], w.Freq, t0, 1)
 		}
 	}
 	if freqInfo > 0 {
