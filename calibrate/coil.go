@@ -102,7 +102,7 @@ func CoilWindows(ws []Window, coil Coil) error {
 // fitted a 0.44 A phantom line between the cores on every traverse (found
 // in review). Ḃ is each window's own Slope, converted with B, and the
 // second order, B̈/ω² for the ideal coil, is taken from its Curve (the
-// curvature of a measured response, H”, is left out); windows without
+// second derivative of a measured response is left out); windows without
 // one (DemodSettings.ConstantAmplitude) take the central difference of
 // their neighbours in a run (one-sided at a run's ends), a run being the
 // windows of one group at one frequency, each within 1.5 of the run's
