@@ -38,7 +38,16 @@ type Window struct {
 	Travel [3]float64
 	B      [3]complex128 // complex RMS field per axis, nT
 	Sigma  [3]float64    // one-sigma of |B| per axis from the fit residuals, nT
-	Freq   float64       // Hz used (given or estimated)
+	// Slope is the rate of change of B per axis across the window, nT/s
+	// (the phasor of the columns (τ-τ̄) cos ωτ and (τ-τ̄) sin ωτ,
+	// DemodSettings.ConstantAmplitude, referenced like B): what the field
+	// changes by as the sensor walks, or as the current changes. Zero
+	// with ConstantAmplitude.
+	Slope [3]complex128
+	// Curve is the second derivative of B per axis, nT/s² (twice the
+	// phasor of the curvature columns); zero with ConstantAmplitude.
+	Curve [3]complex128
+	Freq  float64 // Hz used (given or estimated)
 	// FreqSigma is the one-sigma of an estimated Freq, Hz:
 	// (Σ_k q_k/s_k²)^(-1/2)/2π over the axes k, with s_k² the residual
 	// variance of axis k (n - p - 1 degrees of freedom) and q_k its
@@ -506,7 +515,25 @@ func DemodulateColumns(c *Columns, set *DemodSettings) (*DemodResult, error) {
 
 	tpl, err := newTemplate(N, dt, ds.Freq, ds.Harmonics, ds.Drift, !ds.ConstantAmplitude, ds.Nuisance)
 	if err != nil {
+		if ds.Freq*float64(N)*dt >= ds.MinCycles-0.005 {
+			// Singular outright: say why when a longer window would do.
+			e := &IllConditionedError{Freq: ds.Freq, Rate: fs, Window: res.Window, Inflation: math.Inf(1)}
+			if e.Suggest, _ = conditionedWindow(fs, &ds, WarnWindowInflation); e.Suggest > 0 {
+				return nil, e
+			}
+		}
 		return nil, err
+	}
+	// A window of too few cycles is warned about above; one of enough
+	// cycles whose columns are nearly dependent (a sample rate just above
+	// twice the frequency) is refused, naming a window that would do.
+	if inf := tpl.inflation(); inf > WarnWindowInflation && ds.Freq*float64(N)*dt >= ds.MinCycles-0.005 {
+		e := &IllConditionedError{Freq: ds.Freq, Rate: fs, Window: res.Window, Inflation: inf}
+		e.Suggest, _ = conditionedWindow(fs, &ds, WarnWindowInflation)
+		if inf > MaxWindowInflation {
+			return nil, e
+		}
+		res.Warnings = append(res.Warnings, strings.TrimPrefix(e.Error(), "calibrate: demodulate: "))
 	}
 	d := demodulator{c: c, set: &ds, tpl: tpl, res: res}
 	res.Windows = make([]Window, 0, len(c.Time)/hop+len(runs))
@@ -795,6 +822,141 @@ func newTemplate(n int, dt, freq float64, harmonics []int, drift, slope bool, nu
 	return tp, nil
 }
 
+// MaxWindowInflation is the most by which the variance of the
+// fundamental's cosine or sine coefficient in a window may exceed its
+// variance were the two orthogonal to the window's other columns
+// (template.inflation) before DemodulateColumns refuses the window; beyond
+// WarnWindowInflation it warns, naming a window that would do.
+//
+// Sampled at a rate fs just above twice the frequency f, cos ωt and
+// sin ωt are (-1)^k times an envelope turning at (fs - 2f)/2 Hz, and over
+// a window much shorter than the beat 1/(fs - 2f) that envelope is nearly
+// a quadratic, which the columns of a changing amplitude
+// (DemodSettings.ConstantAmplitude) also take: the fit can no longer tell
+// the fundamental from its change. The variance is then inflated by
+// orders of magnitude, and any change of the field within the window
+// beyond a quadratic (a sensor walked over a cable), or the Earth's field
+// through the rounding of a near-singular solve, with it: a 40 A cable
+// logged at 102 Hz in the 0.2 s windows of ten 50 Hz cycles (an
+// inflation of 4e7) read "no current found" on every traverse, or 12
+// sigma off, with window residuals of 9600 nT (found in review).
+// Windows spanning about two beats or more are inflated by under 2 (1.8
+// at 102 Hz in 1 s windows, 1.9 at 110 Hz in 0.2 s); a well-spread window
+// of ten cycles at 2 kHz by 1.01, and 50 Hz at 107 Hz in 0.2 s (1.4
+// beats) by 24, its sigmas honest but five times those of a longer window.
+const (
+	MaxWindowInflation  = 100
+	WarnWindowInflation = 4
+)
+
+// IllConditionedError is DemodulateColumns' error when the window's
+// columns are so nearly dependent that the fundamental's phasor is lost
+// among them (MaxWindowInflation), typically at a sample rate just above
+// twice the frequency.
+type IllConditionedError struct {
+	Source     string  // the log's name (Demodulate), or ""
+	Freq, Rate float64 // signal frequency and sample rate, Hz
+	Window     float64 // the window asked for, s (a whole number of samples)
+	Inflation  float64 // the fundamental's variance inflation in it
+	// Suggest is the shortest whole multiple of Window (up to
+	// maxWindowMultiple) in which the inflation is at most
+	// WarnWindowInflation (ConditionedWindow); 0 when there is none.
+	Suggest float64
+}
+
+func (e *IllConditionedError) Error() string {
+	src := ""
+	if e.Source != "" {
+		src = e.Source + ": "
+	}
+	var msg string
+	if beat := math.Abs(e.Rate - 2*e.Freq); beat*e.Window < 4 {
+		msg = fmt.Sprintf("calibrate: %sdemodulate: %.5g Hz sampling is too close to twice %g Hz for %.4g s windows: sampled at that rate the %g Hz sine and cosine alternate in sign from sample to sample under an envelope that turns once every %.3g s (1/(fs - 2f)), and over a window shorter than about two such turns the envelope is nearly the window's own columns for a changing amplitude, so the fit cannot tell the signal from its change (%s, and any change of the field within the window beyond a quadratic amplified with it)",
+			src, e.Rate, e.Freq, e.Window, e.Freq, 1/beat, e.inflated())
+	} else {
+		msg = fmt.Sprintf("calibrate: %sdemodulate: the fit's columns are nearly dependent in %.4g s windows of %g Hz at %.5g Hz sampling (%s)", src, e.Window, e.Freq, e.Rate, e.inflated())
+	}
+	if e.Suggest > 0 {
+		return msg + fmt.Sprintf(": use windows of %.4g s or longer, or sample faster", e.Suggest)
+	}
+	return msg + ": sample faster"
+}
+
+// inflated describes the inflation: "the signal's variance 3.6e+07 times that
+// of a well-spread window", or that the columns are singular.
+func (e *IllConditionedError) inflated() string {
+	if math.IsInf(e.Inflation, 0) || math.IsNaN(e.Inflation) {
+		return "the signal's columns singular with the others"
+	}
+	return fmt.Sprintf("the signal's variance %.3g times that of a well-spread window", e.Inflation)
+}
+
+// maxWindowMultiple is the longest window, in multiples of the one asked
+// for, that ConditionedWindow tries.
+const maxWindowMultiple = 64
+
+// ConditionedWindow returns the shortest whole multiple of set.Window
+// (ten cycles of set.Freq when zero) whose fit at the sample rate fs Hz,
+// with set's harmonics, drift, amplitude change and nuisance lines, has
+// the fundamental's variance inflated by at most maxInflation
+// (MaxWindowInflation; see there), and that inflation. Whole multiples
+// keep whole cycles of the signal, or of the mains, where the window held
+// them. It returns set.Window itself when that is well conditioned, and
+// an error when no multiple up to maxWindowMultiple is.
+func ConditionedWindow(fs float64, set *DemodSettings, maxInflation float64) (window, inflation float64, err error) {
+	var ds DemodSettings
+	if set != nil {
+		ds = *set
+	}
+	if !(fs > 0) || !(ds.Freq > 0) {
+		return 0, 0, errors.New("calibrate: conditioned window: sample rate and frequency must be positive")
+	}
+	if ds.Window == 0 {
+		ds.Window = 10 / ds.Freq
+	}
+	w, inf := conditionedWindow(fs, &ds, maxInflation)
+	if w == 0 {
+		return 0, inf, fmt.Errorf("calibrate: conditioned window: no window up to %d times %g s is well conditioned at %g Hz sampling", maxWindowMultiple, ds.Window, fs)
+	}
+	return w, inf, nil
+}
+
+// conditionedWindow is ConditionedWindow on settings with the window set:
+// the window (a whole number of samples) and its inflation, or 0 and the
+// inflation of the longest window tried.
+func conditionedWindow(fs float64, ds *DemodSettings, maxInflation float64) (float64, float64) {
+	dt := 1 / fs
+	var inf float64
+	for m := 1; m <= maxWindowMultiple; m++ {
+		n := int(math.Round(float64(m) * ds.Window / dt))
+		tp, err := newTemplate(n, dt, ds.Freq, ds.Harmonics, ds.Drift, !ds.ConstantAmplitude, ds.Nuisance)
+		if err != nil {
+			inf = math.Inf(1)
+			continue
+		}
+		if inf = tp.inflation(); inf <= maxInflation {
+			return usedWindow(float64(m)*ds.Window, n, dt), inf
+		}
+	}
+	return 0, inf
+}
+
+// inflation is the factor by which the variance of the fundamental's
+// cosine or sine coefficient (the larger) exceeds what it would be were
+// its column orthogonal to the others: (XᵀX)⁻¹_jj times the column's sum
+// of squares, 1 for an orthogonal basis (the variance inflation factor of
+// regression diagnostics). It needs the whole (XᵀX)⁻¹ (the shared
+// template's).
+func (tp *template) inflation() float64 {
+	p := tp.p
+	v0 := tp.ginv[0] * dot(tp.basis[0], tp.basis[0])
+	v1 := tp.ginv[p+1] * dot(tp.basis[1], tp.basis[1])
+	if math.IsNaN(v0) || math.IsNaN(v1) {
+		return math.Inf(1)
+	}
+	return math.Max(v0, v1)
+}
+
 // normalInverse returns (XᵀX)⁻¹ for the columns of X, row-major.
 func normalInverse(cols [][]float64) ([]float64, error) {
 	p := len(cols)
@@ -1051,6 +1213,11 @@ func (d *demodulator) window(lo, hi int) error {
 		w.Sigma[k] = math.Sqrt(v / 2) // RMS scale
 		for j, h := range set.Harmonics {
 			harm[j][k] = localToAbsolute(beta[3+2*j], beta[4+2*j], w.Freq, t0, h)
+		}
+		if tpl.slope {
+			q := slopeStart(set.Harmonics, set.Drift)
+			w.Slope[k] = localToAbsolute(beta[q], beta[q+1], w.Freq, t0, 1)
+			w.Curve[k] = 2 * localToAbsolute(beta[q+2], beta[q+3], w.Freq, t0, 1)
 		}
 	}
 	if freqInfo > 0 {

@@ -266,6 +266,11 @@ func Demodulate(s *ingest.Samples, set *DemodSettings) (*DemodResult, error) {
 		nw.Source = source(s)
 		return nil, nw
 	}
+	var ill *IllConditionedError
+	if errors.As(err, &ill) {
+		ill.Source = source(s)
+		return nil, ill
+	}
 	if err != nil {
 		return nil, fmt.Errorf("calibrate: %s: %s", source(s), strings.TrimPrefix(err.Error(), "calibrate: "))
 	}

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"errors"
 	"fmt"
 	"math"
 	"slices"
@@ -37,7 +38,7 @@ import (
 // residual) while each window alone looks clean. After demodulating at
 // --freq, locate demodulates the same windows again with the frequency
 // fitted in each (calibrate's joint four-parameter fit of the three axes,
-// with the 3rd and 5th harmonics fitted alongside) and combines the windows
+// with the signal's own harmonics fitted alongside) and combines the windows
 // with a clear signal (estimateWindowFreq). When the estimate differs from
 // --freq by more than freqCheckSigmas of its sigma and by enough to turn the
 // phase more than freqCheckDegrees across the longest group, it
@@ -361,7 +362,15 @@ func (pl demodPlan) settings(freq, win float64, h []int) *calibrate.DemodSetting
 // off or wandered" warning and phases turning 63° from group to group),
 // and beside a second cable 120° apart it made the currents' sigmas 1.6
 // to 2.7 times too small (found in review).
-var ownHarmonics = []int{3, 5}
+// The 2nd and 7th are fitted too: with only the 3rd and 5th, a 10% 2nd
+// harmonic (a rectifier's, a saturating transformer's) read a 40 A
+// cable's current 10 sigma low and put the frequency check 0.011 Hz off
+// (a false "currents would read low" warning), and a 10% 7th its phase
+// 5.5 sigma off (found in review); the 9th and above were clean.
+var ownHarmonics = []int{2, 3, 5, 7}
+
+// maxOwnHarmonic is the highest of ownHarmonics.
+var maxOwnHarmonic = slices.Max(ownHarmonics)
 
 // signalHarmonics returns the harmonics of ownHarmonics fitted at freq
 // in windows of win seconds: those below 0.45 of the sample rate (a
@@ -388,6 +397,61 @@ func (pl demodPlan) demodulate(s *ingest.Samples, freq, win float64, h []int) (*
 		}
 	}
 	return res, err
+}
+
+// defaultInflation is the most by which the default window lets the
+// variance of the signal's phasor exceed that of a well-spread window
+// (calibrate.ConditionedWindow) before conditioned lengthens it; the
+// demodulation itself refuses only beyond calibrate.MaxWindowInflation.
+// At sample rates just above twice the frequency a window of ten cycles
+// spans less than a beat 1/(fs - 2f), and its fit, though not refused,
+// still read a 60 Hz field sampled at 128 Hz (an inflation of 61) 7 sigma
+// off in frequency, and 50 Hz at 107 Hz (24) the same (found in review).
+const defaultInflation = 1.5
+
+// conditioned returns the default window win at freq, lengthened to the
+// shortest whole multiple of it in which the signal's phasor is well
+// conditioned at the log's sample rate (defaultInflation), with a warning
+// saying so ("" when win stays).
+func (pl demodPlan) conditioned(freq, win float64) (float64, string) {
+	if !(pl.fs > 0) || float64(maxOwnHarmonic)*freq < 0.45*pl.fs {
+		// Far from the Nyquist frequency: ten cycles are well spread.
+		return win, ""
+	}
+	w, inf, err := calibrate.ConditionedWindow(pl.fs, pl.settings(freq, win, pl.signalHarmonics(freq, win)), defaultInflation)
+	if err != nil || !(w > win*(1+1e-9)) {
+		return win, ""
+	}
+	// The harmonics fitted may change with the window (they must lie apart
+	// from the mains lines fitted beside a tracer): check the window found
+	// with its own.
+	if w2, _, err := calibrate.ConditionedWindow(pl.fs, pl.settings(freq, w, pl.signalHarmonics(freq, w)), defaultInflation); err == nil && w2 > w {
+		w = w2
+	}
+	return w, fmt.Sprintf("the %.5g Hz sampling is close to twice the %g Hz signal: in the default %.4g s windows the signal's sine and cosine, alternating in sign from sample to sample under an envelope that turns once every %.3g s, could hardly be told from their change across the window, so the windows are lengthened to %.4g s (the signal's variance %.2g times that of a well-spread window); give --window to choose another",
+		pl.fs, freq, win, 1/math.Abs(pl.fs-2*freq), w, inf)
+}
+
+// nyquistCheckBeats is the number of beats 1/|fs - 2f| a window must span
+// for the frequency check to act on a small offset (nearNyquist).
+const nyquistCheckBeats = 4
+
+// nearNyquist reports whether the log's sample rate is so close to twice
+// freq that windows of win seconds span fewer than nyquistCheckBeats beats
+// 1/|fs - 2f|. Sampled so, the signal is an envelope alternating in sign
+// from sample to sample, and the frequency-estimating fit, which takes no
+// change of the fundamental's amplitude (its frequency would be lost in
+// it), reads part of a walked sensor's change of amplitude as a change of
+// phase, whatever the window's length: single 50 Hz cables at exact
+// frequency, walked at 1 m/s, read 50.0067 ± 0.0001 Hz at 102 Hz in 1 s
+// windows, 50.0022 ± 0.0001 at 103 Hz and 59.9969 ± 0.0002 at 128 Hz in
+// windows lengthened to span 1.7-2.7 beats, and were demodulated there,
+// with a false "frequency off, currents would read low" warning (found
+// in review). The check then acts only beyond freqCheckUntrustedHz and
+// leaves a smaller offset to the groups' phase ramps; 50 Hz at 107-110 Hz
+// in 0.4 s windows and 115 Hz and above in 0.2 s are clean.
+func (pl demodPlan) nearNyquist(freq, win float64) bool {
+	return pl.fs > 0 && math.Abs(pl.fs-2*freq)*win < nyquistCheckBeats
 }
 
 // nearestMains returns the odd harmonic h of the mains frequency m (of
@@ -546,14 +610,23 @@ func logRate(s *ingest.Samples) float64 {
 // the groups whose own frequency differs (wanderHints).
 func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, float64, []string, map[string]float64, error) {
 	win := o.window
+	pl := demodPlan{mains: o.mains, fs: logRate(s)}
+	var lengthened string
 	if win == 0 {
 		win = defaultWindow(o.freq)
+		win, lengthened = pl.conditioned(o.freq, win)
 	}
-	pl := demodPlan{mains: o.mains, fs: logRate(s)}
 	harm := pl.signalHarmonics(o.freq, win)
 	res, err := pl.demodulate(s, o.freq, win, harm)
 	if err != nil {
+		var ill *calibrate.IllConditionedError
+		if errors.As(err, &ill) && ill.Suggest > 0 {
+			err = fmt.Errorf("%w (--window %g)", err, math.Ceil(ill.Suggest*1000-1e-6)/1000)
+		}
 		return nil, 0, nil, nil, err
+	}
+	if lengthened != "" {
+		res.Warnings = append([]string{lengthened}, res.Warnings...)
 	}
 	if w := pl.clash(o.freq, win); w != "" {
 		res.Warnings = append([]string{w}, res.Warnings...)
@@ -587,12 +660,22 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 	}
 	est, ok := estimateWindowFreq(fit.Windows, win)
 	if !ok {
-		return res, win, append(res.Warnings, uncheckedWarning(fit.Windows, o.freq)), nil, nil
+		why := uncheckedWarning(fit.Windows, o.freq)
+		if pl.nearNyquist(o.freq, win) {
+			why = fmt.Sprintf("the AC frequency could not be checked: sampled at %.5g Hz, close to twice %g Hz, the windows' fitted frequencies also take the walk's change of the field's amplitude and disagree beyond their sigmas; the results assume the field runs at exactly %g Hz (the groups' phase ramps take a small offset)", pl.fs, o.freq, o.freq)
+		}
+		return res, win, append(res.Warnings, why), nil, nil
 	}
 	off := est.freq - o.freq
 	span := longestGroupSpan(res.Windows, win)
 	turn := 360 * math.Abs(off) * span
 	if math.Abs(off) <= freqCheckSigmas*est.sigma || turn <= freqCheckDegrees {
+		return res, win, res.Warnings, wanderHints(fit.Windows, o.freq, win), nil
+	}
+	if pl.nearNyquist(o.freq, win) && math.Abs(off) <= freqCheckUntrustedHz {
+		// Sampled just above twice the frequency, the windows' frequencies
+		// carry the walk's change of amplitude (below): a small offset is
+		// left to the groups' phase ramps, which take a real one.
 		return res, win, res.Warnings, wanderHints(fit.Windows, o.freq, win), nil
 	}
 	dec := freqDecimals(est.sigma)
@@ -625,6 +708,9 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 	again, err := pl.demodulate(s, est.freq, win2, pl.signalHarmonics(est.freq, win2))
 	if err != nil {
 		return nil, 0, nil, nil, err
+	}
+	if lengthened != "" {
+		again.Warnings = append([]string{lengthened}, again.Warnings...)
 	}
 	warn := fmt.Sprintf("AC frequency estimated at %.*f ± %.*f Hz from %d windows, not the %g Hz given (at %g Hz the phase would turn %.0f° across the longest group, %.1f s, and the currents would read low); demodulated at %.*f Hz in %.4g s windows; the estimate's own uncertainty turns the phase by 360·σ·t, so phases compare between the conductors of a group, not between groups",
 		dec, est.freq, dec, est.sigma, est.windows, o.freq, o.freq, turn, span, dec, est.freq, win2)

@@ -228,7 +228,7 @@ var estimatedRE = regexp.MustCompile(`AC frequency estimated at ([0-9.]+) ± ([0
 // TestDemodulateACExact: a log at exactly the frequency given is
 // demodulated exactly as without the check (the same windows, bit for bit,
 // and no warning), with the default window and with --window: at 50 Hz
-// with the signal's 3rd and 5th harmonics and a linear term fitted in
+// with the signal's 2nd, 3rd, 5th and 7th harmonics and a linear term fitted in
 // every window (demodPlan.settings).
 func TestDemodulateACExact(t *testing.T) {
 	sc, _ := scenario(t, "ac-walk-2khz.toml")
@@ -246,7 +246,7 @@ func TestDemodulateACExact(t *testing.T) {
 		if w == 0 {
 			w = 10.0 / 50
 		}
-		want, err := calibrate.Demodulate(s, &calibrate.DemodSettings{Freq: 50, Window: w, Harmonics: []int{3, 5}, Drift: true})
+		want, err := calibrate.Demodulate(s, &calibrate.DemodSettings{Freq: 50, Window: w, Harmonics: []int{2, 3, 5, 7}, Drift: true})
 		if err != nil {
 			t.Fatal(err)
 		}
