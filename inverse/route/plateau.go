@@ -26,10 +26,10 @@ import (
 // with the location x_f (within the bracket) and the effective width H
 // found by a grid search, the levels and the smooth trend g by weighted
 // least squares at each grid point. The trend is always fitted when there
-// are four stations or more, significant or not: the step depends on it
-// through the lever arm from each plateau to x_f, and dropping it when a
-// test finds it insignificant biased the step by several of its sigmas
-// (see fitLevels). As H tends to zero f becomes a
+// are four stations or more, two on each side, significant or not: the
+// step depends on it through the lever arm from each plateau to x_f, and
+// dropping it when a test finds it insignificant biased the step by
+// several of its sigmas (see sharedSlope). As H tends to zero f becomes a
 // sharp step; a gradual transition is used only when it lowers chi-square
 // by more than sharpZ^2 (in units of the Birge scale) against the sharp
 // step, or when the two stations beside the sharp step both read part of
@@ -410,6 +410,7 @@ type gridResult struct {
 // zero (a sharp step) and on a logarithmic grid from 0.02 to 3 station
 // spacings.
 func search(pts []lvPoint, xa, xb, sp, sz float64) gridResult {
+	slope := sharedSlope(pts, xa, xb)
 	fits := make([]lvFit, 0, gridX*gridH)
 	best, sharp := -1, -1
 	for i := range gridX {
@@ -419,7 +420,7 @@ func search(pts []lvPoint, xa, xb, sp, sz float64) gridResult {
 			if j > 0 {
 				h = minWidth * sp * math.Pow(maxWidth/minWidth, float64(j-1)/(gridH-2))
 			}
-			f := fitLevels(pts, xf, h)
+			f := solveLevels(pts, xf, h, slope)
 			fits = append(fits, f)
 			if best < 0 || f.chi2 < fits[best].chi2 {
 				best = len(fits) - 1
@@ -602,8 +603,10 @@ func (f *lvFit) at(x float64) float64 {
 	return f.c[0]*w + f.c[1]*(1-w) + f.c[2]*(x-f.xf)
 }
 
-// fitLevels fits the two levels with a shared slope whenever there are
-// points enough to fit it (at least four, and not all at two chainages).
+// sharedSlope reports whether the levels of a step bracketed by chainages
+// xa and xb are fitted with a shared slope: when there are points enough
+// to fit it (at least four) and at least two of them on each side of the
+// bracket (at or before xa, at or after xb).
 //
 // The slope is kept even when it does not differ significantly from zero.
 // Dropping it when a test finds it insignificant (a pre-test estimator)
@@ -614,8 +617,30 @@ func (f *lvFit) at(x float64) float64 {
 // Carlo coverage check that found it). Keeping the slope costs precision
 // on a route with no trend, but the sigma then covers the step whatever
 // the trend.
-func fitLevels(pts []lvPoint, xf, h float64) lvFit {
-	return solveLevels(pts, xf, h, len(pts) >= 4)
+//
+// But a side of one station cannot share a slope: the slope is then the
+// other side's alone, and the lone station's level is its distance from
+// that side's line carried back to it, which is a step only if that side
+// is straight. At the start of a route before a real leak the stations
+// after the first one fall into the leak's transition, a curve; a line
+// through them, carried back to the first station, read 4.5-5.2 A above
+// it, and the route reported current joining between the first two
+// stations, which read the same current (5 nT, 8 seeds of 40; found in
+// review). With one station on a side the levels are fitted without the
+// slope: the lone station is its own level, and a trend on the other
+// side shows as scatter about its level, which the Birge scaling and the
+// excess scatter carry into the sigma.
+func sharedSlope(pts []lvPoint, xa, xb float64) bool {
+	var nb, na int
+	for _, p := range pts {
+		if p.x <= xa {
+			nb++
+		}
+		if p.x >= xb {
+			na++
+		}
+	}
+	return len(pts) >= 4 && nb >= 2 && na >= 2
 }
 
 // solveLevels solves the normal equations of the level model.

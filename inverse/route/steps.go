@@ -335,6 +335,9 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64, bs 
 			}
 			pl := size(r)
 			z := pl.z()
+			if against(u, runs[r], pl) {
+				z = -1 // no step, whatever its levels say; dropped first
+			}
 			if z <= set.stepK() && z < worstZ {
 				worst, worstZ = r, z
 			}
@@ -342,8 +345,12 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64, bs 
 		if worst < 0 {
 			break
 		}
-		if f, ok := withheld(u, runs[worst], size(worst), set); ok {
-			held = append(held, f)
+		// (A run dropped as going against its stations says nothing of
+		// strain unless its levels agree as well.)
+		if pl := size(worst); pl.z() <= set.stepK() {
+			if f, ok := withheld(u, runs[worst], pl, set); ok {
+				held = append(held, f)
+			}
 		}
 		runs = append(runs[:worst:worst], runs[worst+1:]...)
 		across = append(across[:worst:worst], across[worst+1:]...)
@@ -504,7 +511,7 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64, bs 
 			f.Position = pointAt(u[ia:ib+1], pl.at)
 			f.Values = append(f.Values, Value{Name: "location (chainage)", Value: pl.at, Sigma: pl.atSigma, Unit: "m"})
 		}
-		// The trend is always fitted (see fitLevels) but reported only when
+		// The trend is fitted (see sharedSlope) but reported only when
 		// it differs from zero by more than two sigma.
 		if math.Abs(pl.slope) > 2*pl.slopeSigma {
 			f.Values = append(f.Values, Value{Name: "trend", Value: pl.slope, Sigma: pl.slopeSigma, Unit: "A/m"})
@@ -550,6 +557,32 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64, bs 
 	}
 	return out, notes
 }
+
+// against reports whether the step sized for run (bracketing station
+// indices in u) goes against the change between its bracketing stations:
+// of the other sign, with that change beyond againstK of its sigma. The
+// levels either side are fitted with a shared slope (plateau.go), and a
+// step is the change beyond it; where the stations on one side follow a
+// curve (the transition of a loss further on) rather than a line, the
+// slope carried back to the other side made a "rise" of 5.0 A between
+// stations that fell by 0.13 ± 0.04 A (levels either side 7.4 and 12.5 A
+// where every station read 9.8-10.0 A; simulated, TestLeakStartNoFalseRise;
+// an AC route in review said current rose by 5.18 ± 0.66 A where the
+// stations fell by 0.168 ± 0.045 A). A real step with a trend against it
+// changes the stations the other way only where the trend over the
+// bracket outweighs the step, which the levels cannot then tell from the
+// slope either.
+func against(u []*Placed, run [2]int, pl levels) bool {
+	a, b := u[run[0]], u[run[1]]
+	raw, rawSigma := b.Current-a.Current, math.Hypot(a.CurrentSigma, b.CurrentSigma)
+	return (pl.step > 0) != (raw > 0) && math.Abs(raw) > againstK*rawSigma
+}
+
+// againstK is how many sigmas the change between a step's bracketing
+// stations must go against the step for the step to be dropped (against):
+// a real step of the stations' own sigma or more gives such a change by
+// noise alone less often than 0.2% (normal tail beyond 3).
+const againstK = 2.0
 
 // acrossPoor merges successive runs (bracketing station indices in u, in
 // route order) that share a bracketing station whose fit is not sound
