@@ -13,8 +13,11 @@
 //     where the conductor ends or its current leaves it for good: stations
 //     at either end of the route whose lines all lie over one and a half
 //     times as deep as the sound stations before them and short of their
-//     current as past an end, not as where a conductor dives, are left out of the
-//     profile and the end is reported (ends.go);
+//     current as past an end, not as where a conductor dives (a line over
+//     ten times as deep counting only against a dive, whatever its
+//     current), are left out of the profile and the end is reported, with
+//     the current and depth before it fitted allowing for the share of the
+//     end's field the stations approaching it miss (ends.go, endbefore.go);
 //   - cover shallower than a minimum the caller names;
 //   - stations whose fit is poor or ambiguous; when the sound stations
 //     either side (within three) differ in direction by 10 degrees or more
@@ -136,15 +139,17 @@
 //	I(x) = I_after + (I_before - I_after) (1 + (x_f - x)/sqrt((x_f - x)^2 + H^2))/2 + g (x - x_f)
 //
 // over the run's stations and up to eight sound ones beyond each end, with
-// x_f and H found by a grid search, the trend g always fitted (a trend
-// kept only when significant biases the step; see plateau.go), a shared
+// x_f and H found by a grid search, the trend g always fitted when each
+// side has two stations (a trend kept only when significant biases the
+// step; with one station a side the slope would be the other side's
+// carried back to it; see plateau.go sharedSlope), a shared
 // scatter tau^2 added to the stations' own variances (DerSimonian & Laird
 // 1986), and the sigma the half-width of the profile interval of
 // I_after - I_before, scaled by the Birge ratio when that exceeds one; a
 // gradual transition's x_f and H are then polished off the grid and their
 // uncertainty added by the delta method when that is wider. When the
 // transition's shape places x_f within the bracket the finding gives that
-// location with its sigma. H stays within the grid's range (0.02 to 3
+// location with its sigma, the profile interval of x_f (profileRange). H stays within the grid's range (0.02 to 3
 // station spacings), the step's sigma is never less than the levels'
 // covariance gives, and a fit in which the trend inflates the step's
 // variance more than maxInflation times (the levels and the slope nearly
@@ -152,7 +157,10 @@
 // no level alone: steps either side of a poor bracketing station are
 // merged into one across it (acrossPoor), a poor bracketing station's
 // sigma is scaled by the square root of its reduced chi-square, and a run
-// whose levels agree does not bound its neighbours' plateaus. A station
+// whose levels agree does not bound its neighbours' plateaus; nor does a
+// run whose step goes against the change between its bracketing stations
+// (against), or whose change a more significant neighbour's transition
+// explains (the stations reading a leak's tail; stepFindings). A station
 // whose misfit is many times the noise measured from its own readings
 // (Station.Noise), against what the route's soundest fits show, counts as
 // poor here whatever the survey's yardstick says, and the shift its misfit

@@ -151,6 +151,12 @@ func endEvidence(ps []Placed, run []int, r endRefOf) (logLR float64, lean bool) 
 		}
 		c := math.Abs(p.Current)
 		z0 := (r.current - c) / sigma
+		if far(p, r) {
+			// Past an end the fit may carry any current (z1 = 0), and
+			// the station neither leans nor breaks the run.
+			logLR += z0 * z0 / 2
+			continue
+		}
 		a := math.Min(math.Max(c/r.current, endLo), endHi)
 		z1 := (c - a*r.current) / sigma
 		if !(z0 > 0) || !(math.Abs(z1) < z0) {
@@ -159,6 +165,28 @@ func endEvidence(ps []Placed, run []int, r endRefOf) (logLR float64, lean bool) 
 		logLR += (z0*z0 - z1*z1) / 2
 	}
 	return logLR, lean
+}
+
+// endFar is the ratio to the reference depth beyond which a station's line
+// lies too deep for its current to say anything of an end (far). Past an
+// end the field a traverse sees falls off as h^2/(4 d^2) and spreads
+// wide; the line fitted to it at a few depths past comes out many times
+// as deep, with its current and depth tied together (only their ratio,
+// the field's strength, is fixed), so the current is not a share of the
+// conductor's: 5 m past the end of a 10 A line 1 m deep, under 8 m
+// traverses, the fits read 19.5-50 A at 15-25 m (simulated, 40 seeds;
+// found in review). Where such a fit's current passed its 3-sigma test it
+// read above the conductor's, broke the run past the end, and the end was
+// not named (12 seeds of 40; the station was kept in the route and a
+// 20-degree "bend" read from its azimuth). A conductor that dives keeps
+// its current, but not to ten times its depth within a traverse spacing.
+const endFar = 10.0
+
+// far reports whether station p's line lies more than endFar times as
+// deep as the reference, beyond the ratio at which the current of the
+// field past an end can be read (endFar).
+func far(p *Placed, r endRefOf) bool {
+	return p.Depth > endFar*r.depth
 }
 
 // endOf looks for the run past an end at the far end of idx (station
@@ -197,10 +225,15 @@ func endOf(ps []Placed, idx []int, set *Settings) (Finding, bool) {
 	for _, i := range idx[start:] {
 		p := &ps[i]
 		lo, hi = math.Min(lo, p.Depth), math.Max(hi, p.Depth)
-		clo, chi = math.Min(clo, math.Abs(p.Current)), math.Max(chi, math.Abs(p.Current))
 		keys = append(keys, p.Key)
-		p.Problem = fmt.Sprintf("the fit finds only a line %s m deep carrying %s A, over %.2g times as deep as the conductor before it (%.3g m) with %.0f%% of its current (%.3g A), short of it as past an end and not as where a conductor dives: the field beyond the conductor's end, not the conductor",
-			pm(p.Depth, p.DepthSigma), pm(math.Abs(p.Current), p.CurrentSigma), endDepth, ref.depth, 100*math.Abs(p.Current)/ref.current, ref.current)
+		if far(p, ref) {
+			p.Problem = fmt.Sprintf("the fit finds only a line %s m deep carrying %s A, over %.2g times as deep as the conductor before it (%.3g m), too deep for its current to be read as the conductor's: the field beyond the conductor's end, not the conductor",
+				pm(p.Depth, p.DepthSigma), pm(math.Abs(p.Current), p.CurrentSigma), endFar, ref.depth)
+		} else {
+			p.Problem = fmt.Sprintf("the fit finds only a line %s m deep carrying %s A, over %.2g times as deep as the conductor before it (%.3g m) with %.0f%% of its current (%.3g A), short of it as past an end and not as where a conductor dives: the field beyond the conductor's end, not the conductor",
+				pm(p.Depth, p.DepthSigma), pm(math.Abs(p.Current), p.CurrentSigma), endDepth, ref.depth, 100*math.Abs(p.Current)/ref.current, ref.current)
+			clo, chi = math.Min(clo, math.Abs(p.Current)), math.Max(chi, math.Abs(p.Current))
+		}
 		p.OK = false
 	}
 	first, second := a, b
@@ -211,11 +244,14 @@ func endOf(ps []Placed, idx []int, set *Settings) (Finding, bool) {
 	if hi > lo {
 		depthRange = fmt.Sprintf("%.3g to %.3g m", lo, hi)
 	}
-	curRange := fmt.Sprintf("%.3g A", clo)
-	if chi > clo {
-		curRange = fmt.Sprintf("%.3g to %.3g A", clo, chi)
+	weaker := ""
+	switch {
+	case chi > clo:
+		weaker = fmt.Sprintf(" and weaker (%.3g to %.3g A)", clo, chi)
+	case chi == clo:
+		weaker = fmt.Sprintf(" and weaker (%.3g A)", clo)
 	}
-	sigma := ref.currentSpread
+	before := endBefore(ps, idx, start, set, ref)
 	return Finding{
 		Kind:     KindCurrentStep,
 		Severity: SeverityWarning,
@@ -223,11 +259,11 @@ func endOf(ps []Placed, idx []int, set *Settings) (Finding, bool) {
 		To:       second.Chainage,
 		Position: mid(a.Point, b.Point),
 		Keys:     keys,
-		Message: fmt.Sprintf("the conductor appears to end, or its current to leave it, between %s (chainage %.1f m) and %s (%.1f m): beyond, the fits find only lines far deeper and weaker (%s deep, %s) than the %.3g m and %.3g A of the sound stations before, the field past a conductor's end; those stations are left out of the current and cover profile (an end of the survey's conductor at an earth electrode, a fault or a joint to something else; check where it goes)",
-			label(first), first.Chainage, label(second), second.Chainage, depthRange, curRange, ref.depth, ref.current),
+		Message: fmt.Sprintf("the conductor appears to end, or its current to leave it, between %s (chainage %.1f m) and %s (%.1f m): beyond, the fits find only lines far deeper (%s deep)%s than the %.3g m and %.3g A of the sound stations before, the field past a conductor's end; those stations are left out of the current and cover profile (an end of the survey's conductor at an earth electrode, a fault or a joint to something else; check where it goes); %s",
+			label(first), first.Chainage, label(second), second.Chainage, depthRange, weaker, ref.depth, ref.current, before.text()),
 		Values: []Value{
-			{Name: "current before", Value: ref.current, Sigma: sigma, Unit: "A"},
-			{Name: "depth before", Value: ref.depth, Sigma: ref.depthSpread, Unit: "m"},
+			{Name: "current before", Value: before.current, Sigma: before.currentSigma, Unit: "A"},
+			{Name: "depth before", Value: before.depth, Sigma: before.depthSigma, Unit: "m"},
 		},
 	}, true
 }

@@ -321,6 +321,53 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64, bs 
 		pl.sharpSigma = math.Hypot(pl.sharpSigma, math.Hypot(sb, sa))
 		return pl
 	}
+	// explained reports whether run r's change is the tail of a more
+	// significant neighbour's transition: that neighbour's levels, fitted
+	// over run r's stations too as if r were no step, give the change
+	// between r's bracketing stations to within StepK of its sigma. A
+	// leak's transition reaches stations several spacings before it (a
+	// 2 A loss under traverses 3 m apart: 9.98, 9.96, 9.93, 9.83, 9.45 |
+	// 8.55 A), and a run found among them, its plateau cut off where the
+	// leak's run begins, was sized as a step of its own: a fall of 0.5 A
+	// "most likely at 9.0 m" where nothing left the conductor, or with a
+	// slope a rise of 5 A (simulated; TestLeakLocationSigmaCalibrated,
+	// TestLeakStartNoFalseRise).
+	explained := func(r int) bool {
+		a, b := u[runs[r][0]], u[runs[r][1]]
+		raw, rawSigma := b.Current-a.Current, math.Hypot(a.CurrentSigma, b.CurrentSigma)
+		pr := size(r)
+		z := pr.z()
+		for _, n := range []int{r - 1, r + 1} {
+			if n < 0 || n >= len(runs) || across[n] != nil {
+				continue
+			}
+			if pn := size(n); !(pn.z() > z) {
+				continue
+			}
+			first, last := min(n, r), max(n, r)
+			lo, hi := 0, len(u)-1
+			if first > 0 {
+				lo = runs[first-1][1]
+			}
+			if last+1 < len(runs) {
+				hi = runs[last+1][0]
+			}
+			k := [4]int{runs[n][0], runs[n][1], lo, hi}
+			pl, ok := sized[k]
+			if !ok {
+				pl = plateau(uo, set, runs[n][0], runs[n][1], lo, hi)
+				sized[k] = pl
+			}
+			if !pl.fitted {
+				continue
+			}
+			d := raw - (pl.current(b.Chainage) - pl.current(a.Chainage))
+			if math.Abs(d) <= set.stepK()*rawSigma {
+				return true
+			}
+		}
+		return false
+	}
 	// A run whose levels agree is no step, and must not bound its
 	// neighbours' plateaus either: drop the least significant such run
 	// and size the others again, until every run left is significant.
@@ -335,6 +382,9 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64, bs 
 			}
 			pl := size(r)
 			z := pl.z()
+			if against(u, runs[r], pl) || explained(r) {
+				z = -1 // no step, whatever its levels say; dropped first
+			}
 			if z <= set.stepK() && z < worstZ {
 				worst, worstZ = r, z
 			}
@@ -342,8 +392,12 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64, bs 
 		if worst < 0 {
 			break
 		}
-		if f, ok := withheld(u, runs[worst], size(worst), set); ok {
-			held = append(held, f)
+		// (A run dropped as going against its stations says nothing of
+		// strain unless its levels agree as well.)
+		if pl := size(worst); pl.z() <= set.stepK() {
+			if f, ok := withheld(u, runs[worst], pl, set); ok {
+				held = append(held, f)
+			}
 		}
 		runs = append(runs[:worst:worst], runs[worst+1:]...)
 		across = append(across[:worst:worst], across[worst+1:]...)
@@ -482,7 +536,7 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64, bs 
 		// two stations is placed only by the bracket.
 		// Not across a bend: the currents there are biased, and so is the
 		// shape of the transition.
-		if sp := typicalSpacing(u); b.Chainage-a.Chainage > 1.5*sp {
+		if sp := typicalSpacing(u); widestGap(u, ia, ib, set) > 1.5*sp {
 			// The bracket holds a gap: the station nearest the change is
 			// missing or left out (a poor fit), and the sound stations
 			// either side see the transition only in its tails. Their
@@ -497,6 +551,11 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64, bs 
 			// seeds (pair-beside-cable-loss.toml). The location is then
 			// known to no better than a uniform place within one station
 			// spacing, whose standard deviation is spacing/sqrt(12).
+			// (A run over two intervals with a sound station between
+			// has no gap: that station reads the transition. Taken
+			// for one, it set the sigma at a third of a spacing where
+			// the stations placed the change to a fiftieth; found in
+			// review, TestLeakLocationSigmaCalibrated.)
 			pl.atSigma = math.Max(pl.atSigma, sp/math.Sqrt(12))
 		}
 		resolved := pl.atSigma < 0.25*(b.Chainage-a.Chainage) && bd == nil
@@ -504,7 +563,7 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64, bs 
 			f.Position = pointAt(u[ia:ib+1], pl.at)
 			f.Values = append(f.Values, Value{Name: "location (chainage)", Value: pl.at, Sigma: pl.atSigma, Unit: "m"})
 		}
-		// The trend is always fitted (see fitLevels) but reported only when
+		// The trend is fitted (see sharedSlope) but reported only when
 		// it differs from zero by more than two sigma.
 		if math.Abs(pl.slope) > 2*pl.slopeSigma {
 			f.Values = append(f.Values, Value{Name: "trend", Value: pl.slope, Sigma: pl.slopeSigma, Unit: "A/m"})
@@ -550,6 +609,32 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64, bs 
 	}
 	return out, notes
 }
+
+// against reports whether the step sized for run (bracketing station
+// indices in u) goes against the change between its bracketing stations:
+// of the other sign, with that change beyond againstK of its sigma. The
+// levels either side are fitted with a shared slope (plateau.go), and a
+// step is the change beyond it; where the stations on one side follow a
+// curve (the transition of a loss further on) rather than a line, the
+// slope carried back to the other side made a "rise" of 5.0 A between
+// stations that fell by 0.13 ± 0.04 A (levels either side 7.4 and 12.5 A
+// where every station read 9.8-10.0 A; simulated, TestLeakStartNoFalseRise;
+// an AC route in review said current rose by 5.18 ± 0.66 A where the
+// stations fell by 0.168 ± 0.045 A). A real step with a trend against it
+// changes the stations the other way only where the trend over the
+// bracket outweighs the step, which the levels cannot then tell from the
+// slope either.
+func against(u []*Placed, run [2]int, pl levels) bool {
+	a, b := u[run[0]], u[run[1]]
+	raw, rawSigma := b.Current-a.Current, math.Hypot(a.CurrentSigma, b.CurrentSigma)
+	return (pl.step > 0) != (raw > 0) && math.Abs(raw) > againstK*rawSigma
+}
+
+// againstK is how many sigmas the change between a step's bracketing
+// stations must go against the step for the step to be dropped (against):
+// a real step of the stations' own sigma or more gives such a change by
+// noise alone less often than 0.2% (normal tail beyond 3).
+const againstK = 2.0
 
 // acrossPoor merges successive runs (bracketing station indices in u, in
 // route order) that share a bracketing station whose fit is not sound
@@ -791,6 +876,22 @@ func underText(x, thr float64) (xs, ts string) {
 		}
 	}
 	return strconv.FormatFloat(x, 'g', -1, 64), strconv.FormatFloat(thr, 'g', -1, 64)
+}
+
+// widestGap is the widest chainage interval between successive stations
+// of u[ia..ib] that may set a level (the bracketing stations and the sound
+// ones between, as plateau uses them), m.
+func widestGap(u []*Placed, ia, ib int, set *Settings) float64 {
+	var w float64
+	prev := ia
+	for i := ia + 1; i <= ib; i++ {
+		if i < ib && !levelSound(u[i], set) {
+			continue
+		}
+		w = math.Max(w, u[i].Chainage-u[prev].Chainage)
+		prev = i
+	}
+	return w
 }
 
 // typicalSpacing is the median chainage interval between successive
