@@ -16,7 +16,7 @@ import (
 // (25 A at 1.1 m below ground, seven traverses) read 50 times a second
 // (sample_spacing 0.01 m at 0.5 m/s) with 2 nT of noise, against a base
 // read once a second with 1 nT of noise: each base value is shared by 50
-// survey readings. seed is filled in.
+// survey readings. The seed and the base's noise are filled in.
 const baseNoiseScenario = `name = "base-noise"
 site = "Harrow Fen substation, earthing conductor"
 seed = %d
@@ -41,7 +41,7 @@ turn_s = 10.0
 
 [base]
 sample_rate_hz = 1.0
-noise_nt = 1.0
+noise_nt = %g
 margin_s = 60.0
 
 [[conductor]]
@@ -68,7 +68,7 @@ func TestBaseNoiseInSigmas(t *testing.T) {
 	for seed := 1; seed <= 6; seed++ {
 		dir := t.TempDir()
 		scen := filepath.Join(dir, "scen.toml")
-		if err := os.WriteFile(scen, []byte(fmt.Sprintf(baseNoiseScenario, seed)), 0o644); err != nil {
+		if err := os.WriteFile(scen, []byte(fmt.Sprintf(baseNoiseScenario, seed, 1.0)), 0o644); err != nil {
 			t.Fatal(err)
 		}
 		sc, err := simulate.Load(scen)
@@ -121,6 +121,39 @@ func TestBaseNoiseInSigmas(t *testing.T) {
 		if rms < 0.6 || rms > 1.5 {
 			t.Errorf("%s: RMS pull %.2f over %d traverses, want 0.6 to 1.5 (sigmas that cover the base's noise)", q.name, rms, len(q.pulls))
 		}
+	}
+}
+
+// TestQuietBaseNotWarned: the same survey against a base with 0.05 nT of
+// noise, where the base adds 50 x 0.05² / 2² = 3% to the fits' variance,
+// has its sigmas widened by under 5% and draws no warning.
+func TestQuietBaseNotWarned(t *testing.T) {
+	dir := t.TempDir()
+	scen := filepath.Join(dir, "scen.toml")
+	if err := os.WriteFile(scen, []byte(fmt.Sprintf(baseNoiseScenario, 1, 0.05)), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	log, base := filepath.Join(dir, "log.arrows"), filepath.Join(dir, "base.csv")
+	mustCLI(t, "simulate", scen, "-o", log, "--base-log", base)
+	doc := locateInto[struct {
+		resultDoc
+		BaseStation *struct {
+			Summary string `json:"summary"`
+		} `json:"base_station"`
+	}](t, "--count", "1", "--group-by", "group", "--reference-z", "0", "--base", base, log)
+	for _, w := range doc.Warnings {
+		if strings.Contains(w, "its own noise") {
+			t.Errorf("a quiet base warned of: %s", w)
+		}
+	}
+	var k float64
+	if doc.BaseStation == nil {
+		t.Fatal("no base_station in the document")
+	}
+	if i := strings.Index(doc.BaseStation.Summary, "up to x"); i < 0 {
+		t.Errorf("the base summary does not give the widening: %s", doc.BaseStation.Summary)
+	} else if _, err := fmt.Sscanf(doc.BaseStation.Summary[i:], "up to x%g", &k); err != nil || k >= 1.05 || k < 1 {
+		t.Errorf("widened up to x%g (%v), want under x1.05: %s", k, err, doc.BaseStation.Summary)
 	}
 }
 
