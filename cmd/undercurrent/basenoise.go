@@ -4,8 +4,10 @@ import (
 	"fmt"
 	"math"
 	"reflect"
+	"runtime"
 	"sort"
 	"strings"
+	"sync"
 
 	"gonum.org/v1/gonum/mat"
 
@@ -89,10 +91,14 @@ func newBaseNoise(name string, base *ingest.Samples) *baseNoise {
 }
 
 // widen returns the factor by which the sigmas of group g's DC fit are
-// widened for the base's noise, 1 when there is nothing to widen.
+// widened for the base's noise, 1 when there is nothing to widen. The
+// columns are computed reading by reading, twice (for XᵀX, then for the
+// weights), not stored: a log of a million readings in one group would
+// otherwise hold a dozen columns of three million values.
 func (bn *baseNoise) widen(g *group) float64 {
 	r := g.res
-	if r == nil || len(r.Sources) == 0 || len(r.Predicted) != len(g.points) || len(g.stamps) != len(g.points) || !(r.Sigma > 0) {
+	n := len(g.points)
+	if r == nil || len(r.Sources) == 0 || len(r.Predicted) != n || len(g.stamps) != n || !(r.Sigma > 0) {
 		return 1
 	}
 	for _, t := range g.stamps {
@@ -101,93 +107,106 @@ func (bn *baseNoise) widen(g *group) float64 {
 		}
 	}
 	// The columns: a background per axis, then per line its current,
-	// depth and offset; one for the anomaly of any other source.
-	n := len(g.points)
-	var cols [][]float64 // each n*3 long, nT per unit
-	var params []int     // the columns whose sigmas are compared
-	for k := range 3 {
-		c := make([]float64, 3*n)
-		for i := range n {
-			c[3*i+k] = 1
-		}
-		cols = append(cols, c)
+	// depth and offset (the line moved up, and across its direction);
+	// one for the field of any other source.
+	type move struct {
+		plus, minus inverse.Line
+		current     float64
 	}
+	var lines []inverse.Line
+	var currents []float64
+	var moves [][]move
 	other := false
-	rest := make([]float64, 3*n)
-	for i := range n {
-		for k := range 3 {
-			rest[3*i+k] = r.Predicted[i][k] - r.Background[k]
-		}
-	}
 	for _, s := range r.Sources {
 		if s.Kind != "line" || s.Current == 0 {
 			other = true
 			continue
 		}
-		up := [3]float64{0, 0, 1}
-		across := [3]float64{s.Dir[1]*up[2] - s.Dir[2]*up[1], s.Dir[2]*up[0] - s.Dir[0]*up[2], s.Dir[0]*up[1] - s.Dir[1]*up[0]}
-		an := math.Sqrt(across[0]*across[0] + across[1]*across[1] + across[2]*across[2])
-		line := inverse.Line{Point: s.Point, Dir: s.Dir}
-		cur := make([]float64, 3*n)
-		for i, p := range g.points {
-			b := line.Field(p, 1)
-			for k := range 3 {
-				cur[3*i+k] = b[k] * 1e9
-				rest[3*i+k] -= b[k] * 1e9 * s.Current
-			}
-		}
-		params = append(params, len(cols))
-		cols = append(cols, cur)
-		moves := [][3]float64{up}
-		if an > 1e-6 {
-			moves = append(moves, [3]float64{across[0] / an, across[1] / an, across[2] / an})
-		}
 		const h = 1e-3 // m
-		for _, m := range moves {
-			lp := inverse.Line{Point: [3]float64{s.Point[0] + h*m[0], s.Point[1] + h*m[1], s.Point[2] + h*m[2]}, Dir: s.Dir}
-			lm := inverse.Line{Point: [3]float64{s.Point[0] - h*m[0], s.Point[1] - h*m[1], s.Point[2] - h*m[2]}, Dir: s.Dir}
-			c := make([]float64, 3*n)
-			for i, p := range g.points {
-				bp, bm := lp.Field(p, s.Current), lm.Field(p, s.Current)
-				for k := range 3 {
-					c[3*i+k] = (bp[k] - bm[k]) / (2 * h) * 1e9
-				}
-			}
-			params = append(params, len(cols))
-			cols = append(cols, c)
+		dirs := [][3]float64{{0, 0, 1}}
+		across := [3]float64{s.Dir[1], -s.Dir[0], 0} // Dir x up
+		if an := math.Hypot(across[0], across[1]); an > 1e-6 {
+			dirs = append(dirs, [3]float64{across[0] / an, across[1] / an, 0})
+		}
+		var ms []move
+		for _, m := range dirs {
+			ms = append(ms, move{
+				plus:    inverse.Line{Point: [3]float64{s.Point[0] + h*m[0], s.Point[1] + h*m[1], s.Point[2] + h*m[2]}, Dir: s.Dir},
+				minus:   inverse.Line{Point: [3]float64{s.Point[0] - h*m[0], s.Point[1] - h*m[1], s.Point[2] - h*m[2]}, Dir: s.Dir},
+				current: s.Current / (2 * h),
+			})
+		}
+		lines = append(lines, inverse.Line{Point: s.Point, Dir: s.Dir})
+		currents = append(currents, s.Current)
+		moves = append(moves, ms)
+	}
+	var params []int // the columns whose sigmas are compared
+	q := 3
+	for l := range lines {
+		for range 1 + len(moves[l]) {
+			params = append(params, q)
+			q++
 		}
 	}
 	if other {
-		params = append(params, len(cols))
-		cols = append(cols, rest)
+		params = append(params, q)
+		q++
 	}
 	if len(params) == 0 {
 		return 1
 	}
-	// Columns scaled to unit length; the Gram matrix inverted.
-	q := len(cols)
+	// row writes reading i's row of each column, per axis, nT per unit.
+	row := func(i int, x [][3]float64) {
+		p := g.points[i]
+		for b := range x {
+			x[b] = [3]float64{}
+		}
+		x[0][0], x[1][1], x[2][2] = 1, 1, 1
+		rest := [3]float64{}
+		for k := range 3 {
+			rest[k] = r.Predicted[i][k] - r.Background[k]
+		}
+		c := 3
+		for l, line := range lines {
+			b := line.Field(p, 1)
+			for k := range 3 {
+				x[c][k] = b[k] * 1e9
+				rest[k] -= b[k] * 1e9 * currents[l]
+			}
+			c++
+			for _, m := range moves[l] {
+				bp, bm := m.plus.Field(p, m.current), m.minus.Field(p, m.current)
+				for k := range 3 {
+					x[c][k] = (bp[k] - bm[k]) * 1e9
+				}
+				c++
+			}
+		}
+		if other {
+			x[c] = rest
+		}
+	}
+	x := make([][3]float64, q)
+	xtx := make([]float64, q*q) // upper triangle
+	for i := range n {
+		row(i, x)
+		for a := range q {
+			for b := a; b < q; b++ {
+				xtx[a*q+b] += x[a][0]*x[b][0] + x[a][1]*x[b][1] + x[a][2]*x[b][2]
+			}
+		}
+	}
+	// Columns scaled to unit length before the inverse.
 	scale := make([]float64, q)
-	for j, c := range cols {
-		var s float64
-		for _, v := range c {
-			s += v * v
-		}
-		if s == 0 {
+	for a := range q {
+		if scale[a] = math.Sqrt(xtx[a*q+a]); scale[a] == 0 {
 			return 1
-		}
-		scale[j] = math.Sqrt(s)
-		for i := range c {
-			c[i] /= scale[j]
 		}
 	}
 	gram := mat.NewSymDense(q, nil)
 	for a := range q {
 		for b := a; b < q; b++ {
-			var s float64
-			for i, v := range cols[a] {
-				s += v * cols[b][i]
-			}
-			gram.SetSym(a, b, s)
+			gram.SetSym(a, b, xtx[a*q+b]/(scale[a]*scale[b]))
 		}
 	}
 	var ch mat.Cholesky
@@ -198,51 +217,60 @@ func (bn *baseNoise) widen(g *group) float64 {
 	if err := ch.InverseTo(&inv); err != nil {
 		return 1
 	}
-	// The base readings the group's times fall between.
-	lo := max(0, sort.SearchFloat64s(bn.t, slicesMin(g.stamps))-1)
-	hi := min(len(bn.t)-1, sort.SearchFloat64s(bn.t, slicesMax(g.stamps)))
-	// Each reading's interpolation weights between base readings.
-	j0s, j1s := make([]int, n), make([]int, n)
-	fs := make([]float64, n)
-	for i, t := range g.stamps {
-		j := sort.SearchFloat64s(bn.t, t)
-		switch {
-		case j < len(bn.t) && bn.t[j] == t, j == 0:
-			j0s[i], j1s[i] = j-lo, j-lo
-		case j == len(bn.t):
-			j0s[i], j1s[i] = j-1-lo, j-1-lo
-		default:
-			j0s[i], j1s[i] = j-1-lo, j-lo
-			fs[i] = (t - bn.t[j-1]) / (bn.t[j] - bn.t[j-1])
+	// The weights of each parameter compared, on the unscaled columns:
+	// a_p = X (XᵀX)⁻¹ e_p, w[p][b] the coefficient of column b:
+	// (XᵀX)⁻¹ = D⁻¹ inv D⁻¹ for the scales D.
+	w := make([][]float64, len(params))
+	for pi, p := range params {
+		w[pi] = make([]float64, q)
+		for b := range q {
+			w[pi][b] = inv.At(b, p) / (scale[b] * scale[p])
 		}
 	}
-	c := make([][3]float64, hi-lo+1)
-	w := make([]float64, q)
-	worst := 0.0
-	for _, p := range params {
-		clear(c)
-		for b := range q {
-			w[b] = inv.At(b, p)
+	// The base readings the group's times fall between, and each
+	// parameter's weights summed onto them with the interpolation's.
+	lo := max(0, sort.SearchFloat64s(bn.t, slicesMin(g.stamps))-1)
+	hi := min(len(bn.t)-1, sort.SearchFloat64s(bn.t, slicesMax(g.stamps)))
+	c := make([][][3]float64, len(params))
+	for pi := range c {
+		c[pi] = make([][3]float64, hi-lo+1)
+	}
+	for i, t := range g.stamps {
+		j := sort.SearchFloat64s(bn.t, t)
+		var j0, j1 int
+		var f float64
+		switch {
+		case j < len(bn.t) && bn.t[j] == t, j == 0:
+			j0, j1 = j, j
+		case j == len(bn.t):
+			j0, j1 = j-1, j-1
+		default:
+			j0, j1 = j-1, j
+			f = (t - bn.t[j-1]) / (bn.t[j] - bn.t[j-1])
 		}
-		// a_p = X (XᵀX)⁻¹ e_p, accumulated onto the base readings.
-		for i := range n {
-			f := fs[i]
+		j0, j1 = j0-lo, j1-lo
+		row(i, x)
+		for pi, wp := range w {
 			for k := range 3 {
 				var a float64
-				for b, x := range w {
-					a += cols[b][3*i+k] * x
+				for b, v := range wp {
+					a += x[b][k] * v
 				}
-				c[j0s[i]][k] += a * (1 - f)
-				c[j1s[i]][k] += a * f
+				c[pi][j0][k] += a * (1 - f)
+				c[pi][j1][k] += a * f
 			}
 		}
+	}
+	worst := 0.0
+	for pi, p := range params {
 		var base float64
-		for _, v := range c {
+		for _, v := range c[pi] {
 			for k := range 3 {
 				base += bn.sigma[k] * bn.sigma[k] * v[k] * v[k]
 			}
 		}
-		survey := r.Sigma * r.Sigma * inv.At(p, p)
+		// |a_p|² = [(XᵀX)⁻¹]_pp on the unscaled columns.
+		survey := r.Sigma * r.Sigma * inv.At(p, p) / (scale[p] * scale[p])
 		worst = math.Max(worst, base/survey)
 	}
 	return math.Sqrt(1 + worst)
@@ -267,19 +295,40 @@ func slicesMax(v []float64) float64 {
 // widenForBaseNoise widens the sigmas of every DC fit for the base's
 // noise, warns when the base adds much to them and notes the widening in
 // the base summary.
-func widenForBaseNoise(sv *survey) {
+// The groups are worked on by workers goroutines at once (0: one per
+// processor), as they are fitted.
+func widenForBaseNoise(sv *survey, workers int) {
 	bn := sv.baseNoise
 	if bn == nil || sv.ac {
 		return
 	}
+	if workers <= 0 {
+		workers = runtime.GOMAXPROCS(0)
+	}
+	factors := make([]float64, len(sv.groups))
+	var wg sync.WaitGroup
+	next := make(chan int)
+	for range min(workers, len(sv.groups)) {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for i := range next {
+				factors[i] = bn.widen(sv.groups[i])
+			}
+		}()
+	}
+	for i, g := range sv.groups {
+		if g.err == nil && g.res != nil {
+			next <- i
+		}
+	}
+	close(next)
+	wg.Wait()
 	var ks []float64
 	var rpb []float64 // survey readings per base interval
-	for _, g := range sv.groups {
-		if g.err != nil || g.res == nil {
-			continue
-		}
-		k := bn.widen(g)
-		if k <= 1 {
+	for i, g := range sv.groups {
+		k := factors[i]
+		if g.err != nil || g.res == nil || k <= 1 {
 			continue
 		}
 		scaleSigmas(g.res, k)

@@ -1516,7 +1516,7 @@ feed:
 	}
 	if err == nil {
 		dropWalkRamps(sv.groups)
-		widenForBaseNoise(sv)
+		widenForBaseNoise(sv, o.workers)
 	}
 	return err
 }
