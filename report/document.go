@@ -68,7 +68,8 @@ type Document struct {
 
 // SigmaNote is the Document.UncertaintyNote that Build writes.
 const SigmaNote = "Every fitted sigma (current_sigma_a, depth_sigma_m, phase_sigma_deg, offset, azimuth and dip " +
-	"sigmas) counts the reading noise only. It does not count the error of the model: bends, a neighbouring " +
+	"sigmas) counts the reading noise only (with a base-station correction, the base record's own noise too, " +
+	"which every survey reading taken between two of its readings shares). It does not count the error of the model: bends, a neighbouring " +
 	"conductor, the finite length of a real conductor against the straight infinite line fitted, errors in the " +
 	"sensor positions. Real errors are often many times larger. The route's station_scatter_current_a and " +
 	"station_scatter_depth_m, the robust scatter between neighbouring stations, are a more realistic measure " +

@@ -780,12 +780,19 @@ func (v *view) summarise() {
 		v.SigmaNote = "The ± figures of the fits (one standard deviation) count the reading noise only, " +
 			"not the error of the model: bends, a neighbouring conductor, the straight infinite line fitted " +
 			"to a real conductor, errors in the sensor positions. Real errors are often many times larger."
+		noise := "the reading noise"
+		if d.BaseStation != nil {
+			// The base record's own noise is in the fits' sigmas
+			// (cmd/undercurrent basenoise.go).
+			v.SigmaNote += " With the base-station correction they count the base record's own noise too, which every reading taken between two of its readings shares."
+			noise = "the reading noise and the base station's"
+		}
 		what := "current"
 		if d.Route != nil && d.Route.PairNet {
 			what = "the pair's net current"
 		}
-		v.HowSure = fmt.Sprintf("Fit uncertainty (one standard deviation from the reading noise only, median over the fits): %s ± %s A (%s %%), depth ± %s m. Plots show ± two of these standard deviations.",
-			what, sigText(median(curSig)), sigText(100*median(curRel)), sigText(median(depSig)))
+		v.HowSure = fmt.Sprintf("Fit uncertainty (one standard deviation from %s only, median over the fits): %s ± %s A (%s %%), depth ± %s m. Plots show ± two of these standard deviations.",
+			noise, what, sigText(median(curSig)), sigText(100*median(curRel)), sigText(median(depSig)))
 	}
 	if ok < len(d.Groups) {
 		v.HowSure = strings.TrimSpace(v.HowSure + fmt.Sprintf(" %d of %d fits failed and are not used.", len(d.Groups)-ok, len(d.Groups)))

@@ -490,6 +490,9 @@ type survey struct {
 	// baseGaps are the gaps of the base record that survey readings fell
 	// in (basegaps.go).
 	baseGaps []baseGapUse
+	// baseNoise is the base record's own noise, for the fits' sigmas
+	// (basenoise.go); nil without a base or when it is not measured.
+	baseNoise *baseNoise
 }
 
 // fitNoise is the noise of the fitted values, nT, for a reading noise of
@@ -604,6 +607,7 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			sv.warnings = append(sv.warnings, w)
 		}
 		baseLeftOut = spiked
+		sv.baseNoise = newBaseNoise(o.base, base)
 	}
 	opts := append(append([]ingest.Option(nil), o.readOpts...), o.coil.readOptions()...)
 	if o.groupBy != "" && o.groupBy != ingest.ColGroup {
@@ -1525,6 +1529,7 @@ feed:
 	}
 	if err == nil {
 		dropWalkRamps(sv.groups)
+		widenForBaseNoise(sv, o.workers)
 	}
 	return err
 }
