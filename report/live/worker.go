@@ -72,6 +72,9 @@ type assetWorker struct {
 	// implausibleLogged holds the implausible checks the last window
 	// failed (logged when they began to fail).
 	implausibleLogged map[string]bool
+	// ctx is the context run was given: its cause says whether the
+	// processing is to drain or to stop at once (see fenced).
+	ctx context.Context
 }
 
 func (s *Service) newAssetWorker(a *AssetConfig) (*assetWorker, error) {
@@ -100,6 +103,15 @@ func (s *Service) newAssetAssembler(a *AssetConfig) *assembler {
 // published and the checkpoint is written.
 func (w *assetWorker) run(ctx context.Context) error {
 	defer w.svc.met.dataLag.forget(w.asset.Name)
+	w.ctx = ctx
+	err := w.runAsset(ctx)
+	if f := w.fenced(); f != nil && (err == nil || errors.Is(err, f)) {
+		return nil // stopped on purpose; logged where it stopped
+	}
+	return err
+}
+
+func (w *assetWorker) runAsset(ctx context.Context) error {
 	st := w.svc.stores
 	bg := context.Background()
 	if e, err := st.State.Get(bg, checkpointKey(w.asset.Name)); err == nil {
@@ -189,34 +201,62 @@ func (w *assetWorker) consume(ctx context.Context) (*RestartStatus, uint64, erro
 	}
 	w.log.Info("asset acquired", "resume_seq", w.ck.ResumeSeq, "done", w.ck.Done, "revision", w.ck.Revision, "backlog_to", w.asm.backlog)
 	msgs := make(chan jetstream.Msg, 64)
+	// The reader stops when rctx ends, whatever the iterator does: after
+	// a broker restart an iterator told to drain can go on delivering
+	// from a consumer it recreated, and its Stop is then a no-op.
+	rctx, rcancel := context.WithCancel(bg)
+	defer rcancel()
 	go func() {
 		defer close(msgs)
 		for {
-			m, err := it.Next()
+			m, err := it.Next(jetstream.NextContext(rctx))
 			if err != nil {
 				return
 			}
 			if deliveryGate != nil {
 				deliveryGate(m)
 			}
-			msgs <- m
+			select {
+			case msgs <- m:
+			case <-rctx.Done():
+				return
+			}
 		}
 	}()
+	// stop ends the reading without waiting for the reader, which may be
+	// held in the client while the broker does not answer: it returns as
+	// soon as Next does, dropping what it had.
 	stop := func() {
+		rcancel()
 		it.Stop()
-		for range msgs {
-		}
 	}
 	w.lastData, w.silent = w.silenceAtStart(bg)
 	tick := time.NewTicker(w.tickEvery())
 	defer tick.Stop()
 	var polled time.Time
+	var drainEnd <-chan time.Time
 	done := ctx.Done()
 	for {
+		// A lost lease is looked at before anything else: select picks
+		// among ready cases at random, and a message handled after the
+		// loss would be processed by a worker without the lease.
+		if err := w.fenced(); err != nil {
+			stop()
+			w.log.Warn("asset processing stopped: "+err.Error()+"; nothing more is published or checkpointed by this worker", "last_seq", w.asm.lastSeq)
+			return nil, 0, err
+		}
 		select {
 		case <-done:
 			done = nil
 			it.Drain()
+			drainEnd = time.After(w.svc.drainLimit())
+		case <-drainEnd:
+			// The consumer went on delivering past the messages it had
+			// fetched (or never closed): stop reading. Complete windows
+			// are published; the open ones stay for the next holder.
+			w.log.Warn("drain did not end in time: reading stopped", "limit", w.svc.drainLimit(), "last_seq", w.asm.lastSeq)
+			stop()
+			return nil, 0, w.saveCheckpoint()
 		case m, ok := <-msgs:
 			if !ok {
 				// Drained: complete windows are published; open ones stay
@@ -251,6 +291,19 @@ func (w *assetWorker) consume(ctx context.Context) (*RestartStatus, uint64, erro
 			}
 		}
 	}
+}
+
+// fenced returns the cause when the asset's processing must stop at once
+// and write nothing more to the broker (errLeaseLost: another worker may
+// hold the asset; errAbandoned: a drain cut short at shutdown), else nil.
+func (w *assetWorker) fenced() error {
+	if w.ctx == nil {
+		return nil
+	}
+	if c := context.Cause(w.ctx); errors.Is(c, errLeaseLost) || errors.Is(c, errAbandoned) {
+		return c
+	}
+	return nil
 }
 
 // deliveryGate, when set (by tests), is called with each message the
@@ -556,7 +609,7 @@ func (w *assetWorker) message(subject string, data []byte) *nats.Msg {
 // ID id (the broker drops a repeat) and counts it unless it was a repeat.
 func (w *assetWorker) publishAlarm(al Alarm, id string) error {
 	ad, _ := json.Marshal(al)
-	ack, err := w.svc.publish(w.message(broker.AlarmSubject(w.asset.Name, al.Kind), ad), id)
+	ack, err := w.svc.publishFenced(w.fenced, w.message(broker.AlarmSubject(w.asset.Name, al.Kind), ad), id)
 	if err != nil {
 		return err
 	}
@@ -642,6 +695,9 @@ func (w *assetWorker) deadLetter(reason, subj string, seq uint64, data []byte, c
 	w.svc.met.messages.WithLabelValues(w.asset.Name, "dead-letter").Inc()
 	w.svc.met.deadLetters.WithLabelValues(reason).Inc()
 	w.log.Warn("message refused", "reason", reason, "seq", seq, "err", cause)
+	if err := w.fenced(); err != nil {
+		return err
+	}
 	ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
 	defer cancel()
 	if err := broker.DeadLetter(ctx, w.svc.stores.JS, reason, subj, seq, data, w.svc.site.Service.MaxMessageBytes, cause); err != nil {
@@ -784,7 +840,7 @@ func (w *assetWorker) publishWindow(win *window, r *reduced) error {
 		return fmt.Errorf("live: asset %s: encode estimate: %w", w.asset.Name, err)
 	}
 	id := w.msgID(win.Index)
-	ack, err := w.svc.publish(w.message(broker.EstimateSubject(w.asset.Name), data), id)
+	ack, err := w.svc.publishFenced(w.fenced, w.message(broker.EstimateSubject(w.asset.Name), data), id)
 	if err != nil {
 		return err
 	}
@@ -797,6 +853,9 @@ func (w *assetWorker) publishWindow(win *window, r *reduced) error {
 		if err := w.publishAlarm(al, id+"/"+al.Kind+"/"+al.Subject); err != nil {
 			return err
 		}
+	}
+	if err := w.fenced(); err != nil {
+		return err
 	}
 	ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
 	defer cancel()
@@ -815,6 +874,9 @@ func (w *assetWorker) publishWindow(win *window, r *reduced) error {
 }
 
 func (w *assetWorker) saveCheckpoint() error {
+	if err := w.fenced(); err != nil {
+		return err
+	}
 	t0 := time.Now()
 	resume := w.asm.resumeSeq()
 	if len(w.pending) > 0 && w.pending[0].minSeq < resume {
