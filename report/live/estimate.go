@@ -31,6 +31,14 @@ type Estimate struct {
 	Chi2    float64 `json:"chi2"`
 	DOF     int     `json:"dof"`
 	Quality string  `json:"quality"`
+	// SigmaScale is set on a degraded window: sqrt(Chi2/DOF), the factor
+	// by which its noise sigmas (current_sigma_a, phase_sigma_deg, before
+	// the held geometry's share is added) were widened, as the readings
+	// miss the model by that many times the stated noise (the Birge ratio,
+	// with which the route analysis of batch fits widens a poor fit's
+	// sigmas too). Absent on other windows, whose sigmas come from the
+	// stated noise alone.
+	SigmaScale float64 `json:"sigma_scale,omitempty"`
 	// Implausible lists why the window's readings look implausible (the
 	// messages of its implausible alarms); absent when they do not.
 	Implausible []string `json:"implausible,omitempty"`
