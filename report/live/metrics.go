@@ -47,7 +47,7 @@ func newMetrics() *metrics {
 	m.windows = prometheus.NewCounterVec(prometheus.CounterOpts{Name: "uc_windows_total",
 		Help: "Windows closed, by asset and why (complete, grace, idle)."}, []string{"asset", "closed"})
 	m.estimates = prometheus.NewCounterVec(prometheus.CounterOpts{Name: "uc_estimates_total",
-		Help: "Estimates published, by asset and result (published, duplicate, failed)."}, []string{"asset", "result"})
+		Help: "Estimates published, by asset and result (published, duplicate, failed; empty: a window closed on idle with too few samples from every sensor, not published)."}, []string{"asset", "result"})
 	m.alarms = prometheus.NewCounterVec(prometheus.CounterOpts{Name: "uc_alarms_total",
 		Help: "Alarms raised, by asset and kind."}, []string{"asset", "kind"})
 	m.stage = prometheus.NewHistogramVec(prometheus.HistogramOpts{Name: "uc_stage_seconds",

@@ -28,6 +28,9 @@ type processor struct {
 	// revision is the asset's read revision, copied into every estimate
 	// and alarm; the worker keeps it equal to its checkpoint's.
 	revision int
+	// solveErr is the estimator's error of the last solve (nil when it
+	// solved), kept for the log: alarms do not show it.
+	solveErr error
 }
 
 func newProcessor(a *AssetConfig, worker string) (*processor, error) {
@@ -345,9 +348,16 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 	if err == nil && len(out.Current) != len(p.names) {
 		err = fmt.Errorf("estimator returned %d currents for %d conductors", len(out.Current), len(p.names))
 	}
+	p.solveErr = err
 	if err != nil {
+		// The estimator's error is for the log (the worker logs
+		// solveErr); the alarm says what an operator can act on.
 		e.Quality = "failed"
-		alarms = append(alarms, p.alarm(w, AlarmDegraded, "", 0, 0, fmt.Sprintf("solve failed with %d sensors: %v", len(r.used), err)))
+		msg := fmt.Sprintf("no estimate: no sensor gave enough usable samples (at least %d) in the window", minSamples)
+		if len(r.used) > 0 {
+			msg = fmt.Sprintf("no estimate: the fit with the %d usable sensors failed (see the log)", len(r.used))
+		}
+		alarms = append(alarms, p.alarm(w, AlarmDegraded, "", 0, 0, msg))
 		return e, alarms
 	}
 	e.RMS, e.Chi2, e.DOF, e.Background = out.RMS, out.Chi2, out.DOF, out.Background

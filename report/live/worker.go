@@ -814,10 +814,43 @@ func (w *assetWorker) window(win *window) error {
 			w.proc.est, w.proc.names, w.proc.dirs, w.proc.shifts = nil, nil, nil, nil
 		}
 	}
+	if win.Reason == "idle" && !anyUsable(win) {
+		w.dropEmpty(win)
+		return nil
+	}
 	if w.proc.est == nil {
 		return w.commission(win)
 	}
 	return w.publishWindow(win, nil)
+}
+
+// anyUsable reports whether a sensor gave win at least minSamples samples.
+func anyUsable(win *window) bool {
+	for i := range win.Sensors {
+		if win.Sensors[i].len() >= minSamples {
+			return true
+		}
+	}
+	return false
+}
+
+// dropEmpty passes over a window closed on idle in which no sensor gave
+// enough samples to use: a straggler sample or two after the feed
+// stopped (a sensor clock a few milliseconds ahead puts its last sample
+// in the next window). It is not an estimate (no currents, and it would
+// replace the last real one as latest) nor a reason for per-sensor silent
+// alarms (the whole feed stopped, which the asset's silent alarm tells);
+// it is logged and counted as uc_estimates_total{result="empty"}.
+func (w *assetWorker) dropEmpty(win *window) {
+	n := 0
+	for i := range win.Sensors {
+		n += win.Sensors[i].len()
+	}
+	w.log.Info("window closed on idle with too few samples from every sensor to use: no estimate", "window", win.Index, "start", unixString(win.Start), "samples", n, "least_per_sensor", minSamples)
+	w.svc.met.estimates.WithLabelValues(w.asset.Name, "empty").Inc()
+	if len(w.pending) == 0 {
+		w.ck.Done, w.ck.Window = win.End, win.Index
+	}
 }
 
 func (w *assetWorker) publishWindow(win *window, r *reduced) error {
@@ -828,6 +861,9 @@ func (w *assetWorker) publishWindow(win *window, r *reduced) error {
 	}
 	t1 := time.Now()
 	est, alarms := w.proc.solve(win, r)
+	if err := w.proc.solveErr; err != nil {
+		w.log.Warn("window not solved", "window", win.Index, "sensors", est.Sensors, "err", err)
+	}
 	t2 := time.Now()
 	met.stage.WithLabelValues("reduce").Observe(t1.Sub(t0).Seconds())
 	met.stage.WithLabelValues("solve").Observe(t2.Sub(t1).Seconds())
