@@ -49,6 +49,10 @@ type Estimate struct {
 	Sensors int               `json:"sensors"`
 	Samples int               `json:"samples"`
 	Missing map[string]string `json:"missing,omitempty"`
+	// DataLost is set on the first window after data that the broker
+	// removed (data_retention, data_max_bytes) before the worker read it:
+	// what was lost (the message of the asset's data-lost alarm).
+	DataLost string `json:"data_lost,omitempty"`
 	// Closed says why the window closed: complete, grace or idle.
 	Closed string `json:"closed"`
 	Worker string `json:"worker"`
@@ -112,8 +116,11 @@ const (
 	// AlarmImplausible: the readings do not look like nanotesla (subject
 	// "earth-field" or "chi2", see Estimate.Implausible).
 	AlarmImplausible = "implausible"
+	// AlarmDataLost: the broker removed data (data_retention,
+	// data_max_bytes) before the asset's worker read it.
+	AlarmDataLost = "data-lost"
 )
 
 // AlarmKinds lists every alarm kind the service raises; the alarms API
 // refuses any other kind.
-var AlarmKinds = []string{AlarmOverCurrent, AlarmImbalance, AlarmStep, AlarmSilent, AlarmStuck, AlarmDegraded, AlarmImplausible}
+var AlarmKinds = []string{AlarmOverCurrent, AlarmImbalance, AlarmStep, AlarmSilent, AlarmStuck, AlarmDegraded, AlarmImplausible, AlarmDataLost}

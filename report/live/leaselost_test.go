@@ -4,6 +4,7 @@ import (
 	"context"
 	"log/slog"
 	"math"
+	"strings"
 	"sync"
 	"testing"
 	"time"
@@ -31,7 +32,7 @@ func TestLeaseLostStopsProcessing(t *testing.T) {
 		t.Skip("runs a broker and two workers")
 	}
 	h := newHarness(t)
-	site := testSite(t, testSiteText)
+	site := testSite(t, shortResumeSite)
 	g := newStallGate(t, h)
 	logs := &syncBuffer{}
 	stopA := startWorker(t, h, site, "wa", slog.New(slog.NewTextHandler(logs, nil)))
@@ -112,7 +113,7 @@ func TestShutdownWithStalledConsumerReturns(t *testing.T) {
 		t.Skip("runs a broker and two workers")
 	}
 	h := newHarness(t)
-	site := testSite(t, testSiteText)
+	site := testSite(t, shortResumeSite)
 	g := newStallGate(t, h)
 	stopA := startWorker(t, h, site, "wa", nil)
 	h.publish(0, 1)
@@ -201,3 +202,8 @@ func startWorker(t *testing.T, h *harness, site *Site, worker string, logger *sl
 		}
 	}
 }
+
+// shortResumeSite is testSiteText with resume_idle as short as idle, so
+// that windows a worker rebuilds from data stored before it took the
+// asset (a backlog) close on idle as quickly as live ones.
+var shortResumeSite = strings.Replace(testSiteText, `idle = "400ms"`, "idle = \"400ms\"\nresume_idle = \"400ms\"", 1)

@@ -28,7 +28,9 @@ func TestStragglerWindowNotPublished(t *testing.T) {
 		t.Skip("runs a broker and the service")
 	}
 	h := newHarness(t)
-	r := h.start(testSite(t, testSiteText), "w1")
+	// resume_idle as short as idle, in case the worker takes the asset
+	// after the data is stored (a backlog).
+	r := h.start(testSite(t, shortResumeSite), "w1")
 	h.publish(0, 2) // windows 0 to 3
 	straggler := &broker.Batch{Asset: "fenwick-lane", Sensor: "s0", Time: []float64{t0 + 2.003}, Bx: []float64{0}, By: []float64{5}, Bz: []float64{1040}}
 	ctx, cancel := context.WithTimeout(context.Background(), 20*time.Second)

@@ -38,6 +38,12 @@ type checkpoint struct {
 	// was last raised for (RFC 3339), so that a successor does not raise
 	// it again for the same silence.
 	SilentSince string `json:"silent_since,omitempty"`
+	// DataLost is the message of a data-lost alarm not yet carried by an
+	// estimate: it goes on the first window ending after DataLostAt (the
+	// first sample after the data removed), so that a successor marks it
+	// if this worker stops before.
+	DataLost   string  `json:"data_lost,omitempty"`
+	DataLostAt float64 `json:"data_lost_at,omitempty"`
 }
 
 func checkpointKey(asset string) string { return "checkpoint." + asset }
@@ -75,6 +81,20 @@ type assetWorker struct {
 	// ctx is the context run was given: its cause says whether the
 	// processing is to drain or to stop at once (see fenced).
 	ctx context.Context
+	// removed, when set, is the range of data stream sequences the broker
+	// removed that this worker was to read from (see noteRemoved).
+	removed *removedRange
+}
+
+// removedRange is a range of UC_DATA sequences removed before the
+// asset's worker read them, from a checkpoint whose resume sequence is
+// below the stream's first. sure says some of them were the asset's (its
+// checkpoint had read them into windows not yet published); otherwise
+// they may all be other assets', and the asset's first sample after them
+// tells (see noteRemoved).
+type removedRange struct {
+	from, to uint64
+	sure     bool
 }
 
 func (s *Service) newAssetWorker(a *AssetConfig) (*assetWorker, error) {
@@ -198,6 +218,12 @@ func (w *assetWorker) consume(ctx context.Context) (*RestartStatus, uint64, erro
 		w.log.Warn("data stream not readable: idle closes count backlog as new data", "err", err)
 	} else {
 		w.asm.backlog = info.State.LastSeq
+		// The checkpoint says where to read from; a stream whose first
+		// sequence is past it has removed (data_retention, data_max_bytes)
+		// data this worker never read.
+		if rs := w.ck.ResumeSeq; rs > 0 && info.State.FirstSeq > rs {
+			w.removed = &removedRange{from: rs, to: info.State.FirstSeq - 1, sure: rs <= w.ck.LastSeq}
+		}
 	}
 	w.log.Info("asset acquired", "resume_seq", w.ck.ResumeSeq, "done", w.ck.Done, "revision", w.ck.Revision, "backlog_to", w.asm.backlog)
 	msgs := make(chan jetstream.Msg, 64)
@@ -456,6 +482,11 @@ func (w *assetWorker) handle(m jetstream.Msg) error {
 	if err := checkTimes(subj, b, md.Timestamp, w.svc.site.Service.MaxAhead.Duration); err != nil {
 		return w.deadLetter(broker.ReasonMalformed, subj, seq, data, err)
 	}
+	if w.removed != nil {
+		if err := w.noteRemoved(b.Time[0]); err != nil {
+			return err
+		}
+	}
 	t0 = time.Now()
 	res, _ := w.asm.addMsg(si, seq, b, t0, subj, data)
 	met.stage.WithLabelValues("assemble").Observe(time.Since(t0).Seconds())
@@ -489,6 +520,50 @@ func (w *assetWorker) handle(m jetstream.Msg) error {
 		return err
 	}
 	return w.closeReady(t0, 0)
+}
+
+// noteRemoved is called with the first sample time of the first batch of
+// the asset read after the worker found that the broker had removed data
+// it was to read (w.removed). The asset lost data when the removed range
+// held part of its open windows (sure), or when its data resumes a whole
+// window or more after the end of its last published window, or nothing
+// was ever published for it. Then it logs a WARN, counts the removed
+// sequences in uc_data_discarded_messages_total, raises a data-lost alarm
+// in the window after the last published one, and marks the first
+// estimate after the gap (Estimate.DataLost). Otherwise the sequences
+// removed were other assets' (already read by their workers), and this
+// is logged at INFO.
+func (w *assetWorker) noteRemoved(resume float64) error {
+	rm := w.removed
+	w.removed = nil
+	L := w.asset.Window.Seconds()
+	done := w.ck.Done
+	if !rm.sure && done > 0 && resume < done+L {
+		w.log.Info("the broker removed data stream messages before this worker read them, but the asset's data goes on from its last published window: none of its data was lost",
+			"first_seq", rm.from, "last_seq", rm.to, "data_from", unixString(resume))
+		return nil
+	}
+	n := rm.to - rm.from + 1
+	w.svc.met.discarded.WithLabelValues(w.asset.Name).Add(float64(n))
+	span := "before " + unixString(resume)
+	if done > 0 {
+		span = "from " + unixString(done) + " to " + unixString(resume)
+	}
+	msg := fmt.Sprintf("data of asset %s %s was removed by the broker (data_retention or data_max_bytes) before it was processed: data stream sequences %d to %d (%d messages, some of them perhaps other assets') were gone when its worker came to read them",
+		w.asset.Name, span, rm.from, rm.to, n)
+	w.log.Warn("data removed by the broker before it was processed: windows are missing (raise data_max_bytes or data_retention, or keep a worker running)",
+		"first_seq", rm.from, "last_seq", rm.to, "messages", n, "lost_from", unixString(done), "data_from", unixString(resume))
+	idx := w.ck.Window + 1
+	if done == 0 {
+		idx = w.asm.index(resume)
+	}
+	win := &window{Index: idx, Start: float64(idx) * L, End: float64(idx+1) * L}
+	al := w.proc.alarm(win, AlarmDataLost, "", float64(n), 0, msg)
+	if err := w.publishAlarm(al, w.msgID(idx)+"/"+al.Kind+"/"+strconv.FormatUint(rm.from, 10)); err != nil {
+		return err
+	}
+	w.ck.DataLost, w.ck.DataLostAt = msg, resume
+	return nil
 }
 
 // noteImplausible counts a window's implausible checks in
@@ -861,6 +936,9 @@ func (w *assetWorker) publishWindow(win *window, r *reduced) error {
 	}
 	t1 := time.Now()
 	est, alarms := w.proc.solve(win, r)
+	if w.ck.DataLost != "" && win.End > w.ck.DataLostAt {
+		est.DataLost = w.ck.DataLost
+	}
 	if err := w.proc.solveErr; err != nil {
 		w.log.Warn("window not solved", "window", win.Index, "sensors", est.Sensors, "err", err)
 	}
@@ -903,6 +981,9 @@ func (w *assetWorker) publishWindow(win *window, r *reduced) error {
 	met.latency.WithLabelValues(w.asset.Name).Observe(now.Sub(win.Closed).Seconds())
 	met.dataLag.published(w.asset.Name, win.End)
 	w.ck.Done, w.ck.Window = win.End, win.Index
+	if est.DataLost != "" {
+		w.ck.DataLost, w.ck.DataLostAt = "", 0
+	}
 	if w.svc.onEstimate != nil {
 		w.svc.onEstimate(est, now.Sub(win.Closed))
 	}
