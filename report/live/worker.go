@@ -81,6 +81,9 @@ type assetWorker struct {
 	// ctx is the context run was given: its cause says whether the
 	// processing is to drain or to stop at once (see fenced).
 	ctx context.Context
+	// lctx is a context that ends when the processing must stop at once
+	// (nil before run).
+	lctx context.Context
 	// removed, when set, is the range of data stream sequences the broker
 	// removed that this worker was to read from (see noteRemoved).
 	removed *removedRange
@@ -124,6 +127,16 @@ func (s *Service) newAssetAssembler(a *AssetConfig) *assembler {
 func (w *assetWorker) run(ctx context.Context) error {
 	defer w.svc.met.dataLag.forget(w.asset.Name)
 	w.ctx = ctx
+	// lctx ends only when the processing must stop at once (see fenced),
+	// so that a broker call waiting for an answer gives up then too.
+	lctx, lcancel := context.WithCancel(context.Background())
+	defer lcancel()
+	defer context.AfterFunc(ctx, func() {
+		if w.fenced() != nil {
+			lcancel()
+		}
+	})()
+	w.lctx = lctx
 	err := w.runAsset(ctx)
 	if f := w.fenced(); f != nil && (err == nil || errors.Is(err, f)) {
 		return nil // stopped on purpose; logged where it stopped
