@@ -309,7 +309,6 @@ func (s *Service) leaseRound(ctx context.Context, order []string) {
 			if gerr == nil && string(e.Value()) == s.id {
 				rev, err = st.Lease.Update(rctx, name, []byte(s.id), e.Revision())
 			}
-
 		}
 		if err != nil {
 			// Stop the asset's processing at once, and do not wait for it
@@ -406,8 +405,11 @@ func (s *Service) releaseAll() error {
 		h.cancel(nil)
 	}
 	var errs []error
-	ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
-	defer cancel()
+	release := func(name string) {
+		ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
+		defer cancel()
+		s.releaseLease(ctx, name)
+	}
 	dctx, dcancel := context.WithTimeout(context.Background(), s.drainLimit()+shutdownSlack)
 	defer dcancel()
 	for _, pass := range []string{"drain", "cut"} {
@@ -417,7 +419,7 @@ func (s *Service) releaseAll() error {
 				if err != nil && !h.lost && pass == "drain" {
 					errs = append(errs, err)
 				}
-				s.releaseLease(ctx, name)
+				release(name)
 				delete(s.held, name)
 			case <-dctx.Done():
 			}
@@ -436,6 +438,8 @@ func (s *Service) releaseAll() error {
 		s.log.Warn("asset processing did not stop at shutdown; leaving it (its lease expires after the lease TTL)", "asset", name)
 		delete(s.held, name)
 	}
+	ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
+	defer cancel()
 	s.stores.Workers.Delete(ctx, s.id)
 	s.met.leases.Set(0)
 	s.log.Info("drained")

@@ -558,14 +558,15 @@ func (w *assetWorker) noteRemoved(resume float64) error {
 	}
 	n := rm.to - rm.from + 1
 	w.svc.met.discarded.WithLabelValues(w.asset.Name).Add(float64(n))
-	span := "before " + unixString(resume)
+	span, from := "before "+unixString(resume), "nothing published yet"
 	if done > 0 {
-		span = "from " + unixString(done) + " to " + unixString(resume)
+		from = unixString(done)
+		span = "from " + from + " to " + unixString(resume)
 	}
 	msg := fmt.Sprintf("data of asset %s %s was removed by the broker (data_retention or data_max_bytes) before it was processed: data stream sequences %d to %d (%d messages, some of them perhaps other assets') were gone when its worker came to read them",
 		w.asset.Name, span, rm.from, rm.to, n)
 	w.log.Warn("data removed by the broker before it was processed: windows are missing (raise data_max_bytes or data_retention, or keep a worker running)",
-		"first_seq", rm.from, "last_seq", rm.to, "messages", n, "lost_from", unixString(done), "data_from", unixString(resume))
+		"first_seq", rm.from, "last_seq", rm.to, "messages", n, "lost_from", from, "data_from", unixString(resume))
 	idx := w.ck.Window + 1
 	if done == 0 {
 		idx = w.asm.index(resume)
