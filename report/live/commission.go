@@ -127,6 +127,9 @@ func (w *assetWorker) commission(win *window) error {
 	}
 	g := storedGeometry{Conductors: conds, From: w.pending[0].Start, To: win.End, Worker: w.svc.id, Uncertainty: unc}
 	data, _ := json.Marshal(g)
+	if err := w.fenced(); err != nil {
+		return err
+	}
 	ctx, cancel := context.WithTimeout(context.Background(), 10e9)
 	defer cancel()
 	if _, err := w.svc.stores.State.Put(ctx, geometryKey(w.asset.Name), data); err != nil {

@@ -89,6 +89,21 @@
 // broker's deduplication stores a window published twice (holder died
 // between publishing and checkpointing) only once.
 //
+// A holder that cannot renew the lease cancels the asset's processing
+// with the cause errLeaseLost and does not wait for it: the consume loop
+// looks at the cause before each message and tick, and every write
+// (estimate, alarm, latest, checkpoint, dead letter, geometry) is fenced
+// by it, so nothing more is processed or stored; the lease round goes on
+// (heartbeat, other renewals, acquisitions). A drain (stop, hand-over) is
+// bounded by drainLimit: after a broker restart the client's ordered
+// consumer can go on delivering without ever finishing a drain.
+//
+// A checkpoint whose resume sequence is below UC_DATA's first sequence
+// means the broker removed data (data_max_bytes, data_retention) before
+// it was read; the asset's first batch read after it tells whether any of
+// it was the asset's (see assetWorker.noteRemoved), and if so a data-lost
+// alarm is raised and the next estimate marked.
+//
 // A window is closed on idle only when UC_DATA holds no message for the
 // asset after the last one the worker was given: losing the cluster node
 // that serves the worker's ordered consumer stalls delivery while the

@@ -31,6 +31,14 @@ type Estimate struct {
 	Chi2    float64 `json:"chi2"`
 	DOF     int     `json:"dof"`
 	Quality string  `json:"quality"`
+	// SigmaScale is set on a degraded window: sqrt(Chi2/DOF), the factor
+	// by which its noise sigmas (current_sigma_a, phase_sigma_deg, before
+	// the held geometry's share is added) were widened, as the readings
+	// miss the model by that many times the stated noise (the Birge ratio,
+	// with which the route analysis of batch fits widens a poor fit's
+	// sigmas too). Absent on other windows, whose sigmas come from the
+	// stated noise alone.
+	SigmaScale float64 `json:"sigma_scale,omitempty"`
 	// Implausible lists why the window's readings look implausible (the
 	// messages of its implausible alarms); absent when they do not.
 	Implausible []string `json:"implausible,omitempty"`
@@ -41,6 +49,10 @@ type Estimate struct {
 	Sensors int               `json:"sensors"`
 	Samples int               `json:"samples"`
 	Missing map[string]string `json:"missing,omitempty"`
+	// DataLost is set on the first window after data that the broker
+	// removed (data_retention, data_max_bytes) before the worker read it:
+	// what was lost (the message of the asset's data-lost alarm).
+	DataLost string `json:"data_lost,omitempty"`
 	// Closed says why the window closed: complete, grace or idle.
 	Closed string `json:"closed"`
 	Worker string `json:"worker"`
@@ -104,8 +116,11 @@ const (
 	// AlarmImplausible: the readings do not look like nanotesla (subject
 	// "earth-field" or "chi2", see Estimate.Implausible).
 	AlarmImplausible = "implausible"
+	// AlarmDataLost: the broker removed data (data_retention,
+	// data_max_bytes) before the asset's worker read it.
+	AlarmDataLost = "data-lost"
 )
 
 // AlarmKinds lists every alarm kind the service raises; the alarms API
 // refuses any other kind.
-var AlarmKinds = []string{AlarmOverCurrent, AlarmImbalance, AlarmStep, AlarmSilent, AlarmStuck, AlarmDegraded, AlarmImplausible}
+var AlarmKinds = []string{AlarmOverCurrent, AlarmImbalance, AlarmStep, AlarmSilent, AlarmStuck, AlarmDegraded, AlarmImplausible, AlarmDataLost}

@@ -401,15 +401,20 @@ func (s *Service) history(w http.ResponseWriter, r *http.Request) {
 }
 
 // writeEstimatesCSV writes one row per window and conductor; later columns
-// (revision, then the commissioned geometry's share of the sigmas) come
+// (revision, then the commissioned geometry's share of the sigmas, then a
+// degraded window's sigma scale and the data lost before a window) come
 // after the earlier ones so that those keep their places.
 func writeEstimatesCSV(w http.ResponseWriter, ests []Estimate) {
 	w.Header().Set("Content-Type", "text/csv")
 	cw := csv.NewWriter(w)
 	cw.Write([]string{"asset", "window", "start", "end", "conductor", "current_a", "current_sigma_a", "phase_deg", "phase_sigma_deg", "rms_nt", "chi2", "dof", "quality", "sensors", "revision",
-		"current_sigma_geometry_a", "phase_sigma_geometry_deg"})
+		"current_sigma_geometry_a", "phase_sigma_geometry_deg", "sigma_scale", "data_lost"})
 	f := func(v float64) string { return strconv.FormatFloat(v, 'g', 10, 64) }
 	for _, e := range ests {
+		scale := ""
+		if e.SigmaScale > 0 {
+			scale = f(e.SigmaScale)
+		}
 		for _, c := range e.Conductors {
 			ph, phs := "", ""
 			if c.Phase != nil {
@@ -425,10 +430,10 @@ func writeEstimatesCSV(w http.ResponseWriter, ests []Estimate) {
 				gps = f(*c.PhaseSigmaGeometry)
 			}
 			cw.Write([]string{e.Asset, strconv.FormatInt(e.Window, 10), f(e.Start), f(e.End), c.Name, f(c.Current), f(c.CurrentSigma),
-				ph, phs, f(e.RMS), f(e.Chi2), strconv.Itoa(e.DOF), e.Quality, strconv.Itoa(e.Sensors), strconv.Itoa(e.Revision), gs, gps})
+				ph, phs, f(e.RMS), f(e.Chi2), strconv.Itoa(e.DOF), e.Quality, strconv.Itoa(e.Sensors), strconv.Itoa(e.Revision), gs, gps, scale, e.DataLost})
 		}
 		if len(e.Conductors) == 0 {
-			cw.Write([]string{e.Asset, strconv.FormatInt(e.Window, 10), f(e.Start), f(e.End), "", "", "", "", "", f(e.RMS), f(e.Chi2), strconv.Itoa(e.DOF), e.Quality, strconv.Itoa(e.Sensors), strconv.Itoa(e.Revision), "", ""})
+			cw.Write([]string{e.Asset, strconv.FormatInt(e.Window, 10), f(e.Start), f(e.End), "", "", "", "", "", f(e.RMS), f(e.Chi2), strconv.Itoa(e.DOF), e.Quality, strconv.Itoa(e.Sensors), strconv.Itoa(e.Revision), "", "", scale, e.DataLost})
 		}
 	}
 	cw.Flush()

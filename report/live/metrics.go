@@ -28,6 +28,8 @@ type metrics struct {
 	leases      prometheus.Gauge
 	storeFull   prometheus.Gauge
 	takeovers   prometheus.Counter
+	leaseLost   prometheus.Counter
+	discarded   *prometheus.CounterVec // asset
 }
 
 func newMetrics() *metrics {
@@ -45,7 +47,7 @@ func newMetrics() *metrics {
 	m.windows = prometheus.NewCounterVec(prometheus.CounterOpts{Name: "uc_windows_total",
 		Help: "Windows closed, by asset and why (complete, grace, idle)."}, []string{"asset", "closed"})
 	m.estimates = prometheus.NewCounterVec(prometheus.CounterOpts{Name: "uc_estimates_total",
-		Help: "Estimates published, by asset and result (published, duplicate, failed)."}, []string{"asset", "result"})
+		Help: "Estimates published, by asset and result (published, duplicate, failed; empty: a window closed on idle with too few samples from every sensor, not published)."}, []string{"asset", "result"})
 	m.alarms = prometheus.NewCounterVec(prometheus.CounterOpts{Name: "uc_alarms_total",
 		Help: "Alarms raised, by asset and kind."}, []string{"asset", "kind"})
 	m.stage = prometheus.NewHistogramVec(prometheus.HistogramOpts{Name: "uc_stage_seconds",
@@ -67,8 +69,12 @@ func newMetrics() *metrics {
 		Help: "1 while the broker refuses this worker's writes (heartbeat, leases, estimates) for want of storage, else 0."})
 	m.takeovers = prometheus.NewCounter(prometheus.CounterOpts{Name: "uc_asset_acquisitions_total",
 		Help: "Times this worker acquired an asset's lease."})
+	m.leaseLost = prometheus.NewCounter(prometheus.CounterOpts{Name: "uc_leases_lost_total",
+		Help: "Times this worker could not renew an asset's lease and stopped processing the asset at once."})
+	m.discarded = prometheus.NewCounterVec(prometheus.CounterOpts{Name: "uc_data_discarded_messages_total",
+		Help: "Stream sequences of the data stream that the broker removed (data_retention, data_max_bytes) before this asset's worker read them, by asset: data never processed. Counted as a range of sequences, which may include other assets' messages."}, []string{"asset"})
 	m.reg.MustRegister(m.messages, m.deadLetters, m.samples, m.overlap, m.implausible, m.windows, m.estimates, m.alarms,
-		m.stage, m.latency, m.pending, m.stalls, m.dataLag, m.queryReads, m.leases, m.storeFull, m.takeovers,
+		m.stage, m.latency, m.pending, m.stalls, m.dataLag, m.queryReads, m.leases, m.storeFull, m.takeovers, m.leaseLost, m.discarded,
 		collectors.NewGoCollector(), collectors.NewProcessCollector(collectors.ProcessCollectorOpts{}))
 	return m
 }

@@ -28,6 +28,9 @@ type processor struct {
 	// revision is the asset's read revision, copied into every estimate
 	// and alarm; the worker keeps it equal to its checkpoint's.
 	revision int
+	// solveErr is the estimator's error of the last solve (nil when it
+	// solved), kept for the log: alarms do not show it.
+	solveErr error
 }
 
 func newProcessor(a *AssetConfig, worker string) (*processor, error) {
@@ -345,17 +348,30 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 	if err == nil && len(out.Current) != len(p.names) {
 		err = fmt.Errorf("estimator returned %d currents for %d conductors", len(out.Current), len(p.names))
 	}
+	p.solveErr = err
 	if err != nil {
+		// The estimator's error is for the log (the worker logs
+		// solveErr); the alarm says what an operator can act on.
 		e.Quality = "failed"
-		alarms = append(alarms, p.alarm(w, AlarmDegraded, "", 0, 0, fmt.Sprintf("solve failed with %d sensors: %v", len(r.used), err)))
+		msg := fmt.Sprintf("no estimate: no sensor gave enough usable samples (at least %d) in the window", minSamples)
+		if len(r.used) > 0 {
+			msg = fmt.Sprintf("no estimate: the fit with the %d usable sensors failed (see the log)", len(r.used))
+		}
+		alarms = append(alarms, p.alarm(w, AlarmDegraded, "", 0, 0, msg))
 		return e, alarms
 	}
 	e.RMS, e.Chi2, e.DOF, e.Background = out.RMS, out.Chi2, out.DOF, out.Background
 	e.Quality = "good"
+	// scale widens a degraded window's sigmas by its misfit (see
+	// Estimate.SigmaScale).
+	scale := 1.0
 	if out.DOF > 0 && out.Chi2/float64(out.DOF) > a.Alarms.MaxChi2 {
 		e.Quality = "degraded"
+		scale = math.Sqrt(out.Chi2 / float64(out.DOF))
+		e.SigmaScale = scale
 		alarms = append(alarms, p.alarm(w, AlarmDegraded, "", out.Chi2/float64(out.DOF), a.Alarms.MaxChi2,
-			fmt.Sprintf("reduced chi-square %.3g above %.3g", out.Chi2/float64(out.DOF), a.Alarms.MaxChi2)))
+			fmt.Sprintf("reduced chi-square %.3g above %.3g: the readings miss the held geometry by %.3g times the stated noise; the window's sigmas are widened by that factor",
+				out.Chi2/float64(out.DOF), a.Alarms.MaxChi2, scale)))
 	}
 	if e.Quality == "good" && len(r.missing) > 0 {
 		e.Quality = "partial" // a sensor short of samples or left out: see Missing
@@ -371,14 +387,14 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 	gCur, gPhase := p.geometrySigmas(&r.in, len(p.names))
 	byName := map[string]complex128{}
 	for i, name := range p.names {
-		c := ConductorEstimate{Name: name, Current: out.Current[i], CurrentSigma: out.CurrentSigma[i]}
+		c := ConductorEstimate{Name: name, Current: out.Current[i], CurrentSigma: out.CurrentSigma[i] * scale}
 		if gCur != nil {
 			c.CurrentSigmaGeometry = gCur[i]
 			c.CurrentSigma = math.Hypot(c.CurrentSigma, gCur[i])
 		}
 		ph := 0.0
 		if out.Phase != nil {
-			v, s := out.Phase[i], out.PhaseSigma[i]
+			v, s := out.Phase[i], math.Min(180, out.PhaseSigma[i]*scale)
 			if gPhase != nil {
 				g := math.Min(180, gPhase[i])
 				s = math.Min(180, math.Hypot(s, g))

@@ -223,7 +223,11 @@ func (s *Service) asset(w http.ResponseWriter, r *http.Request) {
 // processor, which writes it into the payloads.
 func (w *assetWorker) pendingRestart() (*RestartStatus, uint64, error) {
 	w.proc.revision = w.ck.Revision
-	ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
+	parent := context.Background()
+	if w.lctx != nil {
+		parent = w.lctx // a lost lease does not wait for the answer
+	}
+	ctx, cancel := context.WithTimeout(parent, 10*time.Second)
 	defer cancel()
 	req, rev, err := w.svc.restartStatus(ctx, w.asset.Name)
 	if err != nil {

@@ -90,11 +90,28 @@ type Service struct {
 }
 
 type holding struct {
-	rev     uint64
-	cancel  context.CancelFunc
+	rev uint64
+	// cancel stops the asset's processing: with a nil cause it drains
+	// (complete windows published, checkpoint written; see drainLimit),
+	// with errLeaseLost it stops at once and writes nothing more.
+	cancel  context.CancelCauseFunc
 	done    chan error
 	leaving bool // draining to hand the asset to another worker
+	// lost says the lease was lost: the processing is told to stop and
+	// is no longer renewed nor counted as held; the holding is dropped
+	// (and the asset may be taken again) once the processing has ended.
+	lost bool
 }
+
+// errLeaseLost is the cause with which an asset's processing is stopped
+// when its lease could not be renewed: another worker may hold the asset
+// by now, so nothing more is processed, published or checkpointed.
+var errLeaseLost = errors.New("lease lost")
+
+// errAbandoned is the cause with which a drain that did not end within
+// its time at shutdown is cut short: what it had not published is left
+// to the next holder, who resumes from the last checkpoint.
+var errAbandoned = errors.New("drain abandoned at shutdown")
 
 // New checks the configuration; Run does the work.
 func New(cfg Config) (*Service, error) {
@@ -281,20 +298,28 @@ func (s *Service) leaseRound(ctx context.Context, order []string) {
 			continue
 		default:
 		}
+		if h.lost {
+			continue // stopping; not ours to renew
+		}
 		rev, err := st.Lease.Update(rctx, name, []byte(s.id), h.rev)
 		if err != nil {
 			// A renewal that timed out may still have been applied: the
 			// lease is ours as long as the key names this worker.
-			if e, gerr := st.Lease.Get(rctx, name); gerr == nil && string(e.Value()) == s.id {
+			e, gerr := st.Lease.Get(rctx, name)
+			if gerr == nil && string(e.Value()) == s.id {
 				rev, err = st.Lease.Update(rctx, name, []byte(s.id), e.Revision())
 			}
 		}
 		if err != nil {
+			// Stop the asset's processing at once, and do not wait for it
+			// here: the round must go on heartbeating and renewing the
+			// other leases. The holding goes once its processing has
+			// ended (the case above, at a later round).
 			s.noteStore(err)
-			s.log.Warn("lease lost", "asset", name, "err", err)
-			h.cancel()
-			<-h.done
-			delete(s.held, name)
+			s.log.Warn("lease lost: the asset's processing stops at once, unpublished windows are left to the next holder", "asset", name, "err", err)
+			s.met.leaseLost.Inc()
+			h.lost = true
+			h.cancel(errLeaseLost)
 			continue
 		}
 		h.rev = rev
@@ -307,7 +332,7 @@ func (s *Service) leaseRound(ctx context.Context, order []string) {
 	// checkpoint written) and its lease is released at a later round.
 	active := 0
 	for _, h := range s.held {
-		if !h.leaving {
+		if !h.leaving && !h.lost {
 			active++
 		}
 	}
@@ -315,7 +340,7 @@ func (s *Service) leaseRound(ctx context.Context, order []string) {
 		if h, ok := s.held[order[i]]; ok && !h.leaving {
 			s.log.Info("handing asset over to share the work", "asset", order[i], "workers", workers)
 			h.leaving = true
-			h.cancel()
+			h.cancel(nil)
 			active--
 		}
 	}
@@ -346,36 +371,92 @@ func (s *Service) leaseRound(ctx context.Context, order []string) {
 			st.Lease.Delete(rctx, name, jetstream.LastRevision(rev))
 			continue
 		}
-		actx, acancel := context.WithCancel(context.Background())
+		actx, acancel := context.WithCancelCause(context.Background())
 		h := &holding{rev: rev, cancel: acancel, done: make(chan error, 1)}
 		s.held[name] = h
 		s.met.takeovers.Inc()
 		go func() { h.done <- aw.run(actx) }()
 	}
-	s.met.leases.Set(float64(len(s.held)))
+	s.setHeld()
 }
 
-// releaseAll drains every held asset and hands its lease back.
+// setHeld sets uc_assets_held to the leases held (those lost and still
+// stopping are not). Called with s.mu held.
+func (s *Service) setHeld() {
+	n := 0
+	for _, h := range s.held {
+		if !h.lost {
+			n++
+		}
+	}
+	s.met.leases.Set(float64(n))
+}
+
+// releaseAll drains every held asset and hands its lease back. Each drain
+// ends by itself within drainLimit once its broker writes go through; a
+// processing that has not ended drainLimit plus shutdownSlack after the
+// stop (its writes retried against a broker that does not answer) is cut
+// short with errAbandoned and waited for no more than shutdownSlack again,
+// so that a stop always returns.
 func (s *Service) releaseAll() error {
 	s.mu.Lock()
 	defer s.mu.Unlock()
 	for _, h := range s.held {
-		h.cancel()
+		h.cancel(nil)
 	}
 	var errs []error
-	ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
-	defer cancel()
-	for name, h := range s.held {
-		if err := <-h.done; err != nil {
-			errs = append(errs, err)
-		}
+	release := func(name string) {
+		ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
+		defer cancel()
 		s.releaseLease(ctx, name)
+	}
+	dctx, dcancel := context.WithTimeout(context.Background(), s.drainLimit()+shutdownSlack)
+	defer dcancel()
+	for _, pass := range []string{"drain", "cut"} {
+		for name, h := range s.held {
+			select {
+			case err := <-h.done:
+				if err != nil && !h.lost && pass == "drain" {
+					errs = append(errs, err)
+				}
+				release(name)
+				delete(s.held, name)
+			case <-dctx.Done():
+			}
+		}
+		if len(s.held) == 0 || pass == "cut" {
+			break
+		}
+		for name, h := range s.held {
+			s.log.Warn("drain not finished in time at shutdown: cut short, windows not yet published are left to the next holder", "asset", name, "after", s.drainLimit()+shutdownSlack)
+			h.cancel(errAbandoned)
+		}
+		dctx, dcancel = context.WithTimeout(context.Background(), shutdownSlack)
+		defer dcancel()
+	}
+	for name := range s.held {
+		s.log.Warn("asset processing did not stop at shutdown; leaving it (its lease expires after the lease TTL)", "asset", name)
 		delete(s.held, name)
 	}
+	ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
+	defer cancel()
 	s.stores.Workers.Delete(ctx, s.id)
 	s.met.leases.Set(0)
 	s.log.Info("drained")
 	return errors.Join(errs...)
+}
+
+// shutdownSlack is the time allowed at shutdown beyond drainLimit for a
+// drain's last writes, and again for a drain cut short to stop.
+const shutdownSlack = 5 * time.Second
+
+// drainLimit bounds an asset's drain (complete windows published and the
+// checkpoint written after a stop): the lease TTL, and at least two
+// seconds. A drain that has not ended by then (the client's consumer can
+// go on delivering after a broker restart) stops reading, writes its
+// checkpoint and returns.
+func (s *Service) drainLimit() time.Duration {
+	return max(s.site.Service.LeaseTTL.Duration, 2*time.Second)
 }
 
 // releaseLease hands the lease on name back if this worker still holds it.
@@ -392,8 +473,20 @@ func (s *Service) releaseLease(ctx context.Context, name string) {
 // publish stores msg through JetStream with a message id, retrying while
 // the broker is unreachable (up to about a minute).
 func (s *Service) publish(msg *nats.Msg, id string) (*jetstream.PubAck, error) {
+	return s.publishFenced(nil, msg, id)
+}
+
+// publishFenced is publish that gives up, before each attempt, when
+// fenced (if not nil) returns an error: an asset's processing that lost
+// its lease stops retrying at once.
+func (s *Service) publishFenced(fenced func() error, msg *nats.Msg, id string) (*jetstream.PubAck, error) {
 	var last error
 	for attempt := 0; attempt < 30; attempt++ {
+		if fenced != nil {
+			if err := fenced(); err != nil {
+				return nil, err
+			}
+		}
 		if s.nc.IsClosed() {
 			return nil, fmt.Errorf("live: publish %s: connection closed", msg.Subject)
 		}

@@ -38,6 +38,12 @@ type checkpoint struct {
 	// was last raised for (RFC 3339), so that a successor does not raise
 	// it again for the same silence.
 	SilentSince string `json:"silent_since,omitempty"`
+	// DataLost is the message of a data-lost alarm not yet carried by an
+	// estimate: it goes on the first window ending after DataLostAt (the
+	// first sample after the data removed), so that a successor marks it
+	// if this worker stops before.
+	DataLost   string  `json:"data_lost,omitempty"`
+	DataLostAt float64 `json:"data_lost_at,omitempty"`
 }
 
 func checkpointKey(asset string) string { return "checkpoint." + asset }
@@ -72,6 +78,26 @@ type assetWorker struct {
 	// implausibleLogged holds the implausible checks the last window
 	// failed (logged when they began to fail).
 	implausibleLogged map[string]bool
+	// ctx is the context run was given: its cause says whether the
+	// processing is to drain or to stop at once (see fenced).
+	ctx context.Context
+	// lctx is a context that ends when the processing must stop at once
+	// (nil before run).
+	lctx context.Context
+	// removed, when set, is the range of data stream sequences the broker
+	// removed that this worker was to read from (see noteRemoved).
+	removed *removedRange
+}
+
+// removedRange is a range of UC_DATA sequences removed before the
+// asset's worker read them, from a checkpoint whose resume sequence is
+// below the stream's first. sure says some of them were the asset's (its
+// checkpoint had read them into windows not yet published); otherwise
+// they may all be other assets', and the asset's first sample after them
+// tells (see noteRemoved).
+type removedRange struct {
+	from, to uint64
+	sure     bool
 }
 
 func (s *Service) newAssetWorker(a *AssetConfig) (*assetWorker, error) {
@@ -100,6 +126,25 @@ func (s *Service) newAssetAssembler(a *AssetConfig) *assembler {
 // published and the checkpoint is written.
 func (w *assetWorker) run(ctx context.Context) error {
 	defer w.svc.met.dataLag.forget(w.asset.Name)
+	w.ctx = ctx
+	// lctx ends only when the processing must stop at once (see fenced),
+	// so that a broker call waiting for an answer gives up then too.
+	lctx, lcancel := context.WithCancel(context.Background())
+	defer lcancel()
+	defer context.AfterFunc(ctx, func() {
+		if w.fenced() != nil {
+			lcancel()
+		}
+	})()
+	w.lctx = lctx
+	err := w.runAsset(ctx)
+	if f := w.fenced(); f != nil && (err == nil || errors.Is(err, f)) {
+		return nil // stopped on purpose; logged where it stopped
+	}
+	return err
+}
+
+func (w *assetWorker) runAsset(ctx context.Context) error {
 	st := w.svc.stores
 	bg := context.Background()
 	if e, err := st.State.Get(bg, checkpointKey(w.asset.Name)); err == nil {
@@ -186,37 +231,71 @@ func (w *assetWorker) consume(ctx context.Context) (*RestartStatus, uint64, erro
 		w.log.Warn("data stream not readable: idle closes count backlog as new data", "err", err)
 	} else {
 		w.asm.backlog = info.State.LastSeq
+		// The checkpoint says where to read from; a stream whose first
+		// sequence is past it has removed (data_retention, data_max_bytes)
+		// data this worker never read.
+		if rs := w.ck.ResumeSeq; rs > 0 && info.State.FirstSeq > rs {
+			w.removed = &removedRange{from: rs, to: info.State.FirstSeq - 1, sure: rs <= w.ck.LastSeq}
+		}
 	}
 	w.log.Info("asset acquired", "resume_seq", w.ck.ResumeSeq, "done", w.ck.Done, "revision", w.ck.Revision, "backlog_to", w.asm.backlog)
 	msgs := make(chan jetstream.Msg, 64)
+	// The reader stops when rctx ends, whatever the iterator does: after
+	// a broker restart an iterator told to drain can go on delivering
+	// from a consumer it recreated, and its Stop is then a no-op.
+	rctx, rcancel := context.WithCancel(bg)
+	defer rcancel()
 	go func() {
 		defer close(msgs)
 		for {
-			m, err := it.Next()
+			m, err := it.Next(jetstream.NextContext(rctx))
 			if err != nil {
 				return
 			}
 			if deliveryGate != nil {
 				deliveryGate(m)
 			}
-			msgs <- m
+			select {
+			case msgs <- m:
+			case <-rctx.Done():
+				return
+			}
 		}
 	}()
+	// stop ends the reading without waiting for the reader, which may be
+	// held in the client while the broker does not answer: it returns as
+	// soon as Next does, dropping what it had.
 	stop := func() {
+		rcancel()
 		it.Stop()
-		for range msgs {
-		}
 	}
 	w.lastData, w.silent = w.silenceAtStart(bg)
 	tick := time.NewTicker(w.tickEvery())
 	defer tick.Stop()
 	var polled time.Time
+	var drainEnd <-chan time.Time
 	done := ctx.Done()
 	for {
+		// A lost lease is looked at before anything else: select picks
+		// among ready cases at random, and a message handled after the
+		// loss would be processed by a worker without the lease.
+		if err := w.fenced(); err != nil {
+			stop()
+			w.log.Warn("asset processing stopped: "+err.Error()+"; nothing more is published or checkpointed by this worker", "last_seq", w.asm.lastSeq)
+			return nil, 0, err
+		}
 		select {
 		case <-done:
 			done = nil
 			it.Drain()
+			drainEnd = time.After(w.svc.drainLimit())
+		case <-drainEnd:
+			// The consumer went on delivering past the messages it had
+			// fetched (or never closed): stop reading. Complete windows
+			// are published; the open ones stay for the next holder.
+			w.log.Warn("drain did not end in time: reading stopped", "limit", w.svc.drainLimit(), "last_seq", w.asm.lastSeq)
+			stop()
+			return nil, 0, w.saveCheckpoint()
 		case m, ok := <-msgs:
 			if !ok {
 				// Drained: complete windows are published; open ones stay
@@ -251,6 +330,19 @@ func (w *assetWorker) consume(ctx context.Context) (*RestartStatus, uint64, erro
 			}
 		}
 	}
+}
+
+// fenced returns the cause when the asset's processing must stop at once
+// and write nothing more to the broker (errLeaseLost: another worker may
+// hold the asset; errAbandoned: a drain cut short at shutdown), else nil.
+func (w *assetWorker) fenced() error {
+	if w.ctx == nil {
+		return nil
+	}
+	if c := context.Cause(w.ctx); errors.Is(c, errLeaseLost) || errors.Is(c, errAbandoned) {
+		return c
+	}
+	return nil
 }
 
 // deliveryGate, when set (by tests), is called with each message the
@@ -403,6 +495,11 @@ func (w *assetWorker) handle(m jetstream.Msg) error {
 	if err := checkTimes(subj, b, md.Timestamp, w.svc.site.Service.MaxAhead.Duration); err != nil {
 		return w.deadLetter(broker.ReasonMalformed, subj, seq, data, err)
 	}
+	if w.removed != nil {
+		if err := w.noteRemoved(b.Time[0]); err != nil {
+			return err
+		}
+	}
 	t0 = time.Now()
 	res, _ := w.asm.addMsg(si, seq, b, t0, subj, data)
 	met.stage.WithLabelValues("assemble").Observe(time.Since(t0).Seconds())
@@ -436,6 +533,51 @@ func (w *assetWorker) handle(m jetstream.Msg) error {
 		return err
 	}
 	return w.closeReady(t0, 0)
+}
+
+// noteRemoved is called with the first sample time of the first batch of
+// the asset read after the worker found that the broker had removed data
+// it was to read (w.removed). The asset lost data when the removed range
+// held part of its open windows (sure), or when its data resumes a whole
+// window or more after the end of its last published window, or nothing
+// was ever published for it. Then it logs a WARN, counts the removed
+// sequences in uc_data_discarded_messages_total, raises a data-lost alarm
+// in the window after the last published one, and marks the first
+// estimate after the gap (Estimate.DataLost). Otherwise the sequences
+// removed were other assets' (already read by their workers), and this
+// is logged at INFO.
+func (w *assetWorker) noteRemoved(resume float64) error {
+	rm := w.removed
+	w.removed = nil
+	L := w.asset.Window.Seconds()
+	done := w.ck.Done
+	if !rm.sure && done > 0 && resume < done+L {
+		w.log.Info("the broker removed data stream messages before this worker read them, but the asset's data goes on from its last published window: none of its data was lost",
+			"first_seq", rm.from, "last_seq", rm.to, "data_from", unixString(resume))
+		return nil
+	}
+	n := rm.to - rm.from + 1
+	w.svc.met.discarded.WithLabelValues(w.asset.Name).Add(float64(n))
+	span, from := "before "+unixString(resume), "nothing published yet"
+	if done > 0 {
+		from = unixString(done)
+		span = "from " + from + " to " + unixString(resume)
+	}
+	msg := fmt.Sprintf("data of asset %s %s was removed by the broker (data_retention or data_max_bytes) before it was processed: data stream sequences %d to %d (%d messages, some of them perhaps other assets') were gone when its worker came to read them",
+		w.asset.Name, span, rm.from, rm.to, n)
+	w.log.Warn("data removed by the broker before it was processed: windows are missing (raise data_max_bytes or data_retention, or keep a worker running)",
+		"first_seq", rm.from, "last_seq", rm.to, "messages", n, "lost_from", from, "data_from", unixString(resume))
+	idx := w.ck.Window + 1
+	if done == 0 {
+		idx = w.asm.index(resume)
+	}
+	win := &window{Index: idx, Start: float64(idx) * L, End: float64(idx+1) * L}
+	al := w.proc.alarm(win, AlarmDataLost, "", float64(n), 0, msg)
+	if err := w.publishAlarm(al, w.msgID(idx)+"/"+al.Kind+"/"+strconv.FormatUint(rm.from, 10)); err != nil {
+		return err
+	}
+	w.ck.DataLost, w.ck.DataLostAt = msg, resume
+	return nil
 }
 
 // noteImplausible counts a window's implausible checks in
@@ -556,7 +698,7 @@ func (w *assetWorker) message(subject string, data []byte) *nats.Msg {
 // ID id (the broker drops a repeat) and counts it unless it was a repeat.
 func (w *assetWorker) publishAlarm(al Alarm, id string) error {
 	ad, _ := json.Marshal(al)
-	ack, err := w.svc.publish(w.message(broker.AlarmSubject(w.asset.Name, al.Kind), ad), id)
+	ack, err := w.svc.publishFenced(w.fenced, w.message(broker.AlarmSubject(w.asset.Name, al.Kind), ad), id)
 	if err != nil {
 		return err
 	}
@@ -642,6 +784,9 @@ func (w *assetWorker) deadLetter(reason, subj string, seq uint64, data []byte, c
 	w.svc.met.messages.WithLabelValues(w.asset.Name, "dead-letter").Inc()
 	w.svc.met.deadLetters.WithLabelValues(reason).Inc()
 	w.log.Warn("message refused", "reason", reason, "seq", seq, "err", cause)
+	if err := w.fenced(); err != nil {
+		return err
+	}
 	ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
 	defer cancel()
 	if err := broker.DeadLetter(ctx, w.svc.stores.JS, reason, subj, seq, data, w.svc.site.Service.MaxMessageBytes, cause); err != nil {
@@ -758,10 +903,43 @@ func (w *assetWorker) window(win *window) error {
 			w.proc.est, w.proc.names, w.proc.dirs, w.proc.shifts = nil, nil, nil, nil
 		}
 	}
+	if win.Reason == "idle" && !anyUsable(win) {
+		w.dropEmpty(win)
+		return nil
+	}
 	if w.proc.est == nil {
 		return w.commission(win)
 	}
 	return w.publishWindow(win, nil)
+}
+
+// anyUsable reports whether a sensor gave win at least minSamples samples.
+func anyUsable(win *window) bool {
+	for i := range win.Sensors {
+		if win.Sensors[i].len() >= minSamples {
+			return true
+		}
+	}
+	return false
+}
+
+// dropEmpty passes over a window closed on idle in which no sensor gave
+// enough samples to use: a straggler sample or two after the feed
+// stopped (a sensor clock a few milliseconds ahead puts its last sample
+// in the next window). It is not an estimate (no currents, and it would
+// replace the last real one as latest) nor a reason for per-sensor silent
+// alarms (the whole feed stopped, which the asset's silent alarm tells);
+// it is logged and counted as uc_estimates_total{result="empty"}.
+func (w *assetWorker) dropEmpty(win *window) {
+	n := 0
+	for i := range win.Sensors {
+		n += win.Sensors[i].len()
+	}
+	w.log.Info("window closed on idle with too few samples from every sensor to use: no estimate", "window", win.Index, "start", unixString(win.Start), "samples", n, "least_per_sensor", minSamples)
+	w.svc.met.estimates.WithLabelValues(w.asset.Name, "empty").Inc()
+	if len(w.pending) == 0 {
+		w.ck.Done, w.ck.Window = win.End, win.Index
+	}
 }
 
 func (w *assetWorker) publishWindow(win *window, r *reduced) error {
@@ -772,6 +950,12 @@ func (w *assetWorker) publishWindow(win *window, r *reduced) error {
 	}
 	t1 := time.Now()
 	est, alarms := w.proc.solve(win, r)
+	if w.ck.DataLost != "" && win.End > w.ck.DataLostAt {
+		est.DataLost = w.ck.DataLost
+	}
+	if err := w.proc.solveErr; err != nil {
+		w.log.Warn("window not solved", "window", win.Index, "sensors", est.Sensors, "err", err)
+	}
 	t2 := time.Now()
 	met.stage.WithLabelValues("reduce").Observe(t1.Sub(t0).Seconds())
 	met.stage.WithLabelValues("solve").Observe(t2.Sub(t1).Seconds())
@@ -784,7 +968,7 @@ func (w *assetWorker) publishWindow(win *window, r *reduced) error {
 		return fmt.Errorf("live: asset %s: encode estimate: %w", w.asset.Name, err)
 	}
 	id := w.msgID(win.Index)
-	ack, err := w.svc.publish(w.message(broker.EstimateSubject(w.asset.Name), data), id)
+	ack, err := w.svc.publishFenced(w.fenced, w.message(broker.EstimateSubject(w.asset.Name), data), id)
 	if err != nil {
 		return err
 	}
@@ -798,6 +982,9 @@ func (w *assetWorker) publishWindow(win *window, r *reduced) error {
 			return err
 		}
 	}
+	if err := w.fenced(); err != nil {
+		return err
+	}
 	ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
 	defer cancel()
 	if _, err := w.svc.stores.Latest.Put(ctx, w.asset.Name, data); err != nil {
@@ -808,6 +995,9 @@ func (w *assetWorker) publishWindow(win *window, r *reduced) error {
 	met.latency.WithLabelValues(w.asset.Name).Observe(now.Sub(win.Closed).Seconds())
 	met.dataLag.published(w.asset.Name, win.End)
 	w.ck.Done, w.ck.Window = win.End, win.Index
+	if est.DataLost != "" {
+		w.ck.DataLost, w.ck.DataLostAt = "", 0
+	}
 	if w.svc.onEstimate != nil {
 		w.svc.onEstimate(est, now.Sub(win.Closed))
 	}
@@ -815,6 +1005,9 @@ func (w *assetWorker) publishWindow(win *window, r *reduced) error {
 }
 
 func (w *assetWorker) saveCheckpoint() error {
+	if err := w.fenced(); err != nil {
+		return err
+	}
 	t0 := time.Now()
 	resume := w.asm.resumeSeq()
 	if len(w.pending) > 0 && w.pending[0].minSeq < resume {
