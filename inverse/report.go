@@ -519,7 +519,7 @@ func (f *fitter) summariseAsIs(c *candidate) (*summary, error) {
 			e.Identifiable.Current, e.Identifiable.Phase = false, false
 			e.Identifiable.Depth, e.Identifiable.Offset = false, false
 			e.CurrentSigma, e.PhaseSigma, e.RelativePhaseSigma = 0, 0, 0
-			e.DepthSigma, e.OffsetSigma = 0, 0
+			e.DepthSigma, e.OffsetSigma, e.PointSigma = 0, 0, [3]float64{}
 			// The note on an insignificant current says the same of this line.
 			e.Notes = slices.DeleteFunc(e.Notes, func(n string) bool { return strings.HasPrefix(n, "current not significantly different from zero") })
 			e.Notes = append(e.Notes, "one of a go-and-return pair whose currents and spacing the data do not separate: its current and position are not determined; the pair's centre, depth and current times spacing are, and are reported for the pair")
@@ -537,6 +537,7 @@ func (f *fitter) summariseAsIs(c *candidate) (*summary, error) {
 		sd := func(j int) float64 { return math.Sqrt(math.Max(su.cov.At(j, j), 0)) }
 		e.Offset, e.OffsetSigma = d.pos[0]-f.sv.centroid[0], sd(off)
 		e.Depth, e.DepthSigma = su.zref-d.pos[2], sd(off+2)
+		e.PointSigma = [3]float64{sd(off), sd(off + 1), sd(off + 2)}
 		pu := unres[off] || unres[off+1] || unres[off+2]
 		e.Identifiable = Identifiable{Depth: !pu, Offset: !pu}
 		c0 := sp.dipCol(di)
@@ -552,7 +553,7 @@ func (f *fitter) summariseAsIs(c *candidate) (*summary, error) {
 		e.Notes = append(e.Notes, "point dipole: a magnetised (ferrous) object, not a current")
 		if pu {
 			e.Notes = append(e.Notes, "position not resolved by the data")
-			e.DepthSigma, e.OffsetSigma = 0, 0
+			e.DepthSigma, e.OffsetSigma, e.PointSigma = 0, 0, [3]float64{}
 		}
 		su.lines = append(su.lines, e)
 		off += 3
