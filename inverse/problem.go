@@ -267,6 +267,9 @@ type SourceEstimate struct {
 	// Offset is the signed horizontal distance from the centroid of the readings to the
 	// line, positive to the right of Dir (east of a line running north), m.
 	Offset, OffsetSigma float64
+	// PointSigma is, for a dipole, the one-sigma uncertainty of Point (east, north,
+	// up), m; zero for a line (its position across itself is Offset and Depth).
+	PointSigma [3]float64
 	// Azimuth of Dir in degrees clockwise from north, [0, 180).
 	Azimuth, AzimuthSigma float64
 	// Dip in degrees, positive when the line descends along Dir.

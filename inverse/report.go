@@ -537,6 +537,7 @@ func (f *fitter) summariseAsIs(c *candidate) (*summary, error) {
 		sd := func(j int) float64 { return math.Sqrt(math.Max(su.cov.At(j, j), 0)) }
 		e.Offset, e.OffsetSigma = d.pos[0]-f.sv.centroid[0], sd(off)
 		e.Depth, e.DepthSigma = su.zref-d.pos[2], sd(off+2)
+		e.PointSigma = [3]float64{sd(off), sd(off + 1), sd(off + 2)}
 		pu := unres[off] || unres[off+1] || unres[off+2]
 		e.Identifiable = Identifiable{Depth: !pu, Offset: !pu}
 		c0 := sp.dipCol(di)
@@ -552,7 +553,7 @@ func (f *fitter) summariseAsIs(c *candidate) (*summary, error) {
 		e.Notes = append(e.Notes, "point dipole: a magnetised (ferrous) object, not a current")
 		if pu {
 			e.Notes = append(e.Notes, "position not resolved by the data")
-			e.DepthSigma, e.OffsetSigma = 0, 0
+			e.DepthSigma, e.OffsetSigma, e.PointSigma = 0, 0, [3]float64{}
 		}
 		su.lines = append(su.lines, e)
 		off += 3
@@ -869,6 +870,9 @@ func (f *fitter) report(c *candidate, scores []ModelScore) (*Result, error) {
 	if len(r.Opposed) == 0 {
 		r.SameWay = f.sameWayOf(c, su)
 	}
+	if c.keptGain > 0 {
+		f.markKept(r, c.keptGain)
+	}
 	for _, pe := range r.SameWay {
 		r.Notes = append(r.Notes, sameWayNote(su, pe, sp.nrhs == 2))
 	}
@@ -952,6 +956,53 @@ func (f *fitter) report(c *candidate, scores []ModelScore) (*Result, error) {
 		r.Notes = append(r.Notes, "robust (Huber) weights: uncertainties are approximate")
 	}
 	return r, nil
+}
+
+// UnresolvedKeptNote begins the note (SourceEstimate.Notes) of a line the automatic
+// count kept although the readings do not resolve its current (keepsUnresolvedLine):
+// the fit without it misses the readings' noise, with it comes near it. Its current,
+// position and angles are not identifiable (the values are the fit's, with no
+// sigma), and it marks no conductor; it is kept so that its field does not bias the
+// other lines' estimates. The Result's notes begin with it too, with the count's
+// figures.
+const UnresolvedKeptNote = "a further line the readings need but do not fix"
+
+// keptNote reports whether source e is a line kept although its current is not
+// resolved (UnresolvedKeptNote).
+func keptNote(e *SourceEstimate) bool {
+	return slices.ContainsFunc(e.Notes, func(n string) bool { return strings.HasPrefix(n, UnresolvedKeptNote) })
+}
+
+// markKept marks in r the line of the fit whose current the readings
+// do not resolve, kept by the automatic count for the fall gain of the criterion it
+// gives (keepsUnresolvedLine): none of its quantities is identifiable, and notes on
+// it and on the fit say why it is there.
+func (f *fitter) markKept(r *Result, gain float64) {
+	inPair := make([]bool, len(r.Sources))
+	for _, pe := range r.Pairs {
+		inPair[pe.Lines[0]], inPair[pe.Lines[1]] = true, true
+	}
+	k := f.currentK()
+	unit := "A"
+	if f.sv.nrhs == 2 {
+		unit = "A RMS"
+	}
+	for i := range r.Sources {
+		e := &r.Sources[i]
+		if e.Kind != "line" || inPair[i] || e.Identifiable.Current && math.Abs(e.Current) > k*e.CurrentSigma {
+			continue
+		}
+		cur := fmt.Sprintf("%.3g %s", math.Abs(e.Current), unit)
+		if e.Identifiable.Current {
+			cur = fmt.Sprintf("%.3g ± %.2g %s, within %.3g sigma of zero", math.Abs(e.Current), e.CurrentSigma, unit, k)
+		}
+		e.Notes = slices.DeleteFunc(e.Notes, func(n string) bool { return strings.HasPrefix(n, "current not significantly different from zero") })
+		e.Notes = append(e.Notes, fmt.Sprintf("%s: its current (%s) and its position trade against each other (a conductor seen only by its gradient, as beyond the traverse's ends), so none of them is determined and it marks no conductor; it is kept so that its field does not bias the other lines", UnresolvedKeptNote, cur))
+		e.Identifiable = Identifiable{}
+		e.CurrentSigma, e.PhaseSigma, e.RelativePhaseSigma = 0, 0, 0
+		e.DepthSigma, e.OffsetSigma, e.AzimuthSigma, e.DipSigma = 0, 0, 0, 0
+		r.Notes = append(r.Notes, fmt.Sprintf("%s (line %d): without it the fit misses the readings' noise, and with it the criterion falls by %.3g and the fit comes near the noise", UnresolvedKeptNote, i+1, gain))
+	}
 }
 
 // statusNote is the note a fit's stopping status calls for, or "" for a

@@ -1007,15 +1007,25 @@ func buildSource(s inverse.SourceEstimate, pts [][3]float64, ac bool) Source {
 		out.Phase, out.PhaseSigma = &ph, &phs
 	}
 	phased := s.Identifiable.Phase || !ac
+	id := s.Identifiable
 	if kind == KindDipole {
 		m, ms := s.Moment, s.MomentSigma
 		out.Moment, out.MomentSigma = &m, &ms
+		// A point has no offset across itself: its position is Point, with
+		// PointSigma. The fit's own dipoles give their east offset from
+		// the readings' centroid there (inverse.SourceEstimate), an object
+		// found beside the conductors none; either read "0 ± 0" as an
+		// exact offset (a steel drum 2.5 m along the traverse from the
+		// readings' centre).
+		out.Offset, out.OffsetSigma, id.Offset = 0, 0, false
+		if ps := s.PointSigma; ps != ([3]float64{}) {
+			out.PointSigma = &ps
+		}
 		if ps := dipolePhaseSigma(m, ms); ac && s.PhaseSigma == 0 && ps > 0 {
 			// The moment's reference phase is estimated, not held.
 			out.PhaseSigma, phased = &ps, true
 		}
 	}
-	id := s.Identifiable
 	for _, q := range []struct {
 		ok   bool
 		name string

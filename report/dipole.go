@@ -1371,9 +1371,9 @@ func searchFrom(f *Fit, from []*inverse.SourceEstimate, at *[3]float64) *dipoleS
 	o.MomentSigma = momSigma
 	o.Distance = offLine(&lr.Sources[0], pos)
 	ds.obj = o
-	ds.source = inverse.SourceEstimate{Kind: KindDipole, Point: pos, Moment: mom, MomentSigma: momSig, Phase: momPhase,
+	ds.source = inverse.SourceEstimate{Kind: KindDipole, Point: pos, PointSigma: sig, Moment: mom, MomentSigma: momSig, Phase: momPhase,
 		Depth: o.Depth, DepthSigma: o.DepthSigma,
-		Identifiable: inverse.Identifiable{Depth: sig[2] > 0, Offset: sig[0] > 0},
+		Identifiable: inverse.Identifiable{Depth: sig[2] > 0},
 		Notes:        []string{"point dipole: a magnetised (ferrous) object, not a current; position and moment sigmas with the conductors' geometry free"}}
 	// The strongest conductor's current solved jointly with the moment at
 	// the final position; its sigma the largest of the conductors' own
@@ -1496,9 +1496,9 @@ func searchAlone(f *Fit, start [3]float64) *dipoleSearch {
 	o := &route.Object{Point: pos, PointSigma: sig, Depth: zref - pos[2], DepthSigma: sig[2], Evidence: ds.gain,
 		Moment: math.Sqrt(mom[0]*mom[0] + mom[1]*mom[1] + mom[2]*mom[2]), MomentSigma: momSigma}
 	ds.obj = o
-	ds.source = inverse.SourceEstimate{Kind: KindDipole, Point: pos, Moment: mom, MomentSigma: momSig, Phase: momPhase,
+	ds.source = inverse.SourceEstimate{Kind: KindDipole, Point: pos, PointSigma: sig, Moment: mom, MomentSigma: momSig, Phase: momPhase,
 		Depth: o.Depth, DepthSigma: o.DepthSigma,
-		Identifiable: inverse.Identifiable{Depth: sig[2] > 0, Offset: sig[0] > 0},
+		Identifiable: inverse.Identifiable{Depth: sig[2] > 0},
 		Notes:        []string{"point dipole: a magnetised (ferrous) object, not a current, with no conductor under it; position and moment sigmas from the readings' noise"}}
 	out := *r
 	out.Status = inverse.Linear

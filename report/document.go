@@ -402,9 +402,14 @@ type Source struct {
 	DepthSigma float64 `json:"depth_sigma_m"`
 	// Offset is the horizontal distance of the conductor from the
 	// readings' centroid, m, signed positive to the right looking along
-	// Direction.
+	// Direction; zero for a dipole, which lists it in Unidentifiable (its
+	// position is Point, with PointSigma).
 	Offset      float64 `json:"offset_m"`
 	OffsetSigma float64 `json:"offset_sigma_m"`
+	// PointSigma is a dipole's one-sigma uncertainty of Point (east,
+	// north, up), m; nil for lines, and for a dipole whose position the
+	// readings do not resolve.
+	PointSigma *[3]float64 `json:"point_sigma_m,omitempty"`
 	// Azimuth is the direction's bearing, degrees clockwise from north.
 	Azimuth      float64 `json:"azimuth_deg"`
 	AzimuthSigma float64 `json:"azimuth_sigma_deg"`
@@ -418,7 +423,8 @@ type Source struct {
 	Moment      *[3]float64 `json:"moment_am2,omitempty"`
 	MomentSigma *[3]float64 `json:"moment_sigma_am2,omitempty"`
 	// Unidentifiable lists quantities the readings cannot determine
-	// ("azimuth", "depth").
+	// ("azimuth", "depth"); for a dipole also those of a line that do not
+	// apply to a point ("current", "offset", "azimuth", "dip").
 	Unidentifiable []string `json:"unidentifiable,omitempty"`
 	Notes          []string `json:"notes,omitempty"`
 	// Conductor is the number of the further conductor (Track.Number)
