@@ -77,6 +77,7 @@ type config struct {
 	allowUnterminated bool // Arrow IPC stream files may lack the end-of-stream marker
 	keepBaseline      bool // IAGA-2002: leave variation data in the baseline frame (WithIAGABaselineFrame)
 	noFrameWarning    bool // IAGA-2002: no warning that east and north are not geographic (WithIAGAFrameWarning)
+	noHeightWarning   bool // no warning that latitude and longitude come without a height (WithHeightWarning)
 	decimalComma      int  // CSV: 0 detect, 1 decimal commas, -1 decimal points (WithDecimalComma)
 	batchRows         int
 	chunkBytes        int
@@ -326,6 +327,14 @@ func WithIAGABaselineFrame(keep bool) Option { return func(c *config) { c.keepBa
 // what it means for the correction), so that it is not given twice. By
 // default (true) the reader warns.
 func WithIAGAFrameWarning(on bool) Option { return func(c *config) { c.noFrameWarning = !on } }
+
+// WithHeightWarning(false) leaves out the warning that a log with latitude
+// and longitude has no height column (every reading then placed at height
+// 0 on the WGS84 ellipsoid). It is for a caller that does not use the
+// log's positions, as a base-station correction does not: a base log that
+// records its fixed position drew advice to map a height that could change
+// nothing (found in review). By default (true) the reader warns.
+func WithHeightWarning(on bool) Option { return func(c *config) { c.noHeightWarning = !on } }
 
 // WithDecimalComma says whether CSV numbers write their decimals with a
 // comma (12,5) instead of a point (12.5), as spreadsheets do in many locales.

@@ -478,7 +478,7 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 	if p.hasPos && !p.geodetic {
 		p.notePositionsAbsent(carried)
 	}
-	if p.geodetic && p.src[cHeight] < 0 {
+	if p.geodetic && p.src[cHeight] < 0 && !cfg.noHeightWarning {
 		p.noteHeightAbsent()
 	}
 	for c := 0; c < nOut; c++ {

@@ -220,12 +220,17 @@ func (p *plan) noteHeightAbsent() {
 			unread = append(unread, h)
 		}
 	}
-	others := "none"
-	if len(unread) > 0 {
-		others = columnList(unread)
+	const lead = "%s: no column for height beside latitude and longitude: every reading is placed at height 0 on the WGS84 ellipsoid, so z follows the ellipsoid, not the ground"
+	if len(unread) == 0 {
+		// Every column is read: "(columns not read: none); if one of them
+		// is the height" pointed at columns there are none of (found in
+		// review).
+		p.warn(lead+" (every column of the log is read, and none is a height): to place the readings at their heights, log the height in a column of its own, mapped with --column height=NAME when its name is not taken for one",
+			p.file)
+		return
 	}
-	p.warn("%s: no column for height beside latitude and longitude: every reading is placed at height 0 on the WGS84 ellipsoid, so z follows the ellipsoid, not the ground (columns not read: %s); if one of them is the height, give it with a column mapping such as height=NAME, on the command line --column height=NAME (and its unit, such as --unit height=ft, if it is not metres)",
-		p.file, others)
+	p.warn(lead+" (columns not read: %s); if one of them is the height, give it with a column mapping such as height=NAME, on the command line --column height=NAME (and its unit, such as --unit height=ft, if it is not metres)",
+		p.file, columnList(unread))
 }
 
 // allPositionWords reports whether s is made of position words only

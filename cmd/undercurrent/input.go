@@ -195,7 +195,9 @@ func checkOption(flag, prefix string, opt ingest.Option) error {
 // correction (calibrate.BaseFrameWarning), which says what that means for
 // the correction: the reader's own warning of it is left out.
 func (f *readFlags) baseOptions(fs *pflag.FlagSet) []ingest.Option {
-	opts := []ingest.Option{ingest.WithAllowMissing(true), ingest.WithIAGABaselineFrame(f.iagaBaseline), ingest.WithIAGAFrameWarning(false)}
+	// The base log's positions are not used: no warning that its
+	// latitude and longitude come without a height.
+	opts := []ingest.Option{ingest.WithAllowMissing(true), ingest.WithIAGABaselineFrame(f.iagaBaseline), ingest.WithIAGAFrameWarning(false), ingest.WithHeightWarning(false)}
 	if f.allowUnterminated {
 		opts = append(opts, ingest.WithAllowUnterminatedStream(true))
 	}

@@ -627,6 +627,8 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 	if base != nil {
 		baseFrameNote = calibrate.BaseFrameWarning(base)
 	}
+	// The logs are read and checked first, then corrected and grouped.
+	read := make([]*ingest.Samples, 0, len(logs))
 	for k, path := range logs {
 		if o.coil.on() {
 			// A field unit the log gives its own field columns.
@@ -670,13 +672,17 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		if o.groupBy != "" && s.Group == nil {
 			return nil, fmt.Errorf("%s has no column %q to group by (see \"undercurrent inspect %s\" for its columns)", path, o.groupBy, path)
 		}
-		if o.groupBy != "" {
-			// A traverse name used again in another log for another
-			// traverse (loggroups.go).
-			if w := separateReusedGroups(index, path, logs, s); w != "" {
-				sv.alerts = append(sv.alerts, w)
-			}
-		}
+		read = append(read, s)
+	}
+	if o.groupBy != "" {
+		// A traverse name used again in another log for another traverse,
+		// told apart once every log is read, so that the earliest keeps
+		// the name (loggroups.go).
+		sv.alerts = append(sv.alerts, nameReusedGroups(logs, read)...)
+	}
+	for k, path := range logs {
+		s := read[k]
+		read[k] = nil // the groups hold the readings from here on
 		if w, err := sv.sameOrigin(o, s); err != nil {
 			return nil, err
 		} else if w != "" {
@@ -1604,6 +1610,9 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 	if err != nil {
 		return nil, err
 	}
+	// The group the route starts at, in the warning that the order of
+	// the logs given set it (loggroups.go).
+	routeStartNote(doc)
 	// Groups whose readings fell in a gap of the base record.
 	baseGapsDocument(doc, sv)
 	// Build puts a misfit every group shares first; an alert that names a

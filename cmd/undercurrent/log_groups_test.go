@@ -128,23 +128,20 @@ func twoDigits(n int) string {
 
 // TestReusedGroupPooledOnlyTogether: the rule that keeps one group value
 // in two logs one group. Readings of a cart's second sensor, a metre
-// beside the first at the same times, and a traverse continued in the next
-// file a sample later, are pooled; the same name 140 m away, or at the same
-// place an hour later (the traverse walked again on another visit), is
-// fitted apart.
+// beside the first at the same times or with its clock 30 s off, and a
+// traverse continued in the next file, a sample later or after a pause of
+// any length (it covers no ground again), are pooled; the same name 140 m
+// away, or over the same ground an hour later (the traverse walked again
+// on another visit), or a sensor beside the first with its clock five
+// minutes off, is fitted apart.
 func TestReusedGroupPooledOnlyTogether(t *testing.T) {
-	// The group read so far: T01 of a.csv, 12 m along x at 10 Hz, at
-	// 0.6 m/s, from t = 1000 s.
-	first := &group{key: "T01", from: "a.csv"}
-	for i := range 200 {
-		x := 0.06 * float64(i)
-		first.points = append(first.points, [3]float64{x, 0, 0.25})
-		first.stamps = append(first.stamps, 1000+0.1*float64(i))
-	}
-	log := func(dx, dy, dt float64, n int) *ingest.Samples {
-		s := &ingest.Samples{Source: "b.csv"}
+	// T01 of a.csv: 12 m along x at 10 Hz, at 0.6 m/s, from t = 1e9 s
+	// (a calendar time, 2001).
+	const t0 = 1e9
+	log := func(src string, dx, dy, dt float64, n int) *ingest.Samples {
+		s := &ingest.Samples{Source: src}
 		for i := range n {
-			s.Time = append(s.Time, 1000+dt+0.1*float64(i))
+			s.Time = append(s.Time, t0+dt+0.1*float64(i))
 			s.X = append(s.X, dx+0.06*float64(i))
 			s.Y = append(s.Y, dy)
 			s.Group = append(s.Group, "T01")
@@ -156,21 +153,34 @@ func TestReusedGroupPooledOnlyTogether(t *testing.T) {
 		s       *ingest.Samples
 		renamed bool
 	}{
-		{"a second sensor 1 m aside at the same times", log(0, 1, 0, 200), false},
-		{"the traverse continued in the next file", log(12, 0, 20, 50), false},
-		{"another traverse 140 m on, five minutes later", log(140, 0, 300, 200), true},
-		{"the same place an hour later", log(0, 0, 3600, 200), true},
-		{"a sensor 1 m aside, its clock 30 s off", log(0, 1, 30, 200), false},
+		{"a second sensor 1 m aside at the same times", log("b.csv", 0, 1, 0, 200), false},
+		{"the traverse continued in the next file", log("b.csv", 12, 0, 20, 50), false},
+		{"the traverse continued after a 90 s pause", log("b.csv", 12, 0, 110, 15), false},
+		{"the traverse continued an hour later", log("b.csv", 12, 0, 3600, 100), false},
+		{"another traverse 140 m on, five minutes later", log("b.csv", 140, 0, 300, 200), true},
+		{"the same place an hour later", log("b.csv", 0, 0, 3600, 200), true},
+		{"two thirds of the same ground again an hour later", log("b.csv", 4, 0.5, 3600, 200), true},
+		{"a sensor 1 m aside, its clock 30 s off", log("b.csv", 0, 1, 30, 200), false},
+		{"a sensor 1 m aside, its clock five minutes off", log("b.csv", 0, 1, 300, 200), true},
 	} {
-		index := map[string]*group{"T01": first}
-		w := separateReusedGroups(index, "b.csv", []string{"a.csv", "b.csv"}, c.s)
+		first := log("a.csv", 0, 0, 0, 200)
+		w := nameReusedGroups([]string{"a.csv", "b.csv"}, []*ingest.Samples{first, c.s})
 		got := c.s.Group[0] != "T01"
 		if got != c.renamed {
-			t.Errorf("%s: renamed %v (group %q), want %v; warning %q", c.name, got, c.s.Group[0], c.renamed, w)
+			t.Errorf("%s: renamed %v (group %q), want %v; warnings %q", c.name, got, c.s.Group[0], c.renamed, w)
 		}
-		if c.renamed && (c.s.Group[0] != "b.csv:T01" || !strings.Contains(w, "also in a.csv")) {
-			t.Errorf("%s: group %q, warning %q: want b.csv:T01 and a.csv named", c.name, c.s.Group[0], w)
+		if first.Group[0] != "T01" {
+			t.Errorf("%s: the earlier log's group renamed %q", c.name, first.Group[0])
 		}
+		if c.renamed && (c.s.Group[0] != "b.csv:T01" || len(w) != 1 || !strings.Contains(w[0], "also in a.csv")) {
+			t.Errorf("%s: group %q, warnings %q: want b.csv:T01 and a.csv named", c.name, c.s.Group[0], w)
+		}
+	}
+	// The earlier in time keeps the name whichever log is given first.
+	early, late := log("a.csv", 0, 0, 0, 200), log("b.csv", 0, 0, 3600, 200)
+	nameReusedGroups([]string{"b.csv", "a.csv"}, []*ingest.Samples{late, early})
+	if early.Group[0] != "T01" || late.Group[0] != "b.csv:T01" {
+		t.Errorf("given later first: the earlier log's group %q, the later's %q; want T01 and b.csv:T01", early.Group[0], late.Group[0])
 	}
 }
 
@@ -231,9 +241,13 @@ func TestLocateLogOrderSetsNoChainage(t *testing.T) {
 
 // TestLocateLogOrderRelativeTimes: logs whose times are seconds from the
 // logger's start, restarting at 0 in each file, cannot be put in time
-// order across files; the order given is kept, and a warning says that the
-// first log's first group sets chainage 0 (before, nothing said that the
-// order on the command line set it).
+// order across files; the order given is kept, and a warning says that it
+// decides where chainage 0 is (before, nothing said so). The warning named
+// the first log's first group as chainage 0, but the route is turned to
+// agree with the order given as a whole: given as the middle, last and
+// first thirds it named T08 while the route started at T21 (found in
+// review). It now names the group the route starts at, checked against
+// the group the run puts at chainage 0.
 func TestLocateLogOrderRelativeTimes(t *testing.T) {
 	s := kestrelMoor(t)
 	dir := t.TempDir()
@@ -246,16 +260,31 @@ func TestLocateLogOrderRelativeTimes(t *testing.T) {
 	}
 	a := writeSplitLog(t, dir, "a.csv", relative(rowsOf(s, inRange("T01", "T10"), nil)))
 	b := writeSplitLog(t, dir, "b.csv", relative(rowsOf(s, inRange("T11", "T21"), nil)))
+	a3 := writeSplitLog(t, dir, "a3.csv", relative(rowsOf(s, inRange("T01", "T07"), nil)))
+	b3 := writeSplitLog(t, dir, "b3.csv", relative(rowsOf(s, inRange("T08", "T14"), nil)))
+	c3 := writeSplitLog(t, dir, "c3.csv", relative(rowsOf(s, inRange("T15", "T21"), nil)))
 	for _, c := range []struct {
 		order []string
-		start string // the group at chainage 0
-	}{{[]string{a, b}, "T01"}, {[]string{b, a}, "T11"}} {
+		first string // the first log's first group
+	}{{[]string{a, b}, "T01"}, {[]string{b, a}, "T11"}, {[]string{b3, c3, a3}, "T08"}} {
 		args := append([]string{"locate", "--json", "--group-by", "group", "--count", "1"}, c.order...)
 		doc := decodeDoc(t, mustCLI(t, args...))
+		start := ""
+		for _, g := range doc.Groups {
+			if g.Chainage != nil && *g.Chainage == 0 {
+				start = g.Key
+			}
+		}
+		if start == "" {
+			t.Fatalf("order %q: no group at chainage 0", c.order)
+		}
 		w := strings.Join(doc.Warnings, "\n")
-		want := c.order[0] + " has times that are not calendar times (group " + c.start + " starts at 0 s), so the groups of the 2 logs are taken in the order the logs were given in: the first log's first group (" + c.start + ") sets chainage 0"
+		want := c.order[0] + " has times that are not calendar times (group " + c.first + " starts at 0 s), so the groups of the " + twoDigits(len(c.order))[1:] + " logs are taken in the order the logs were given in, and that order decides which end of the route is chainage 0"
 		if !strings.Contains(w, want) {
 			t.Errorf("order %q: warnings lack %q:\n%s", c.order, want, w)
+		}
+		if at := "here chainage 0 is at " + start + ","; !strings.Contains(w, at) {
+			t.Errorf("order %q: the warning does not name %s, the group at chainage 0 (want %q):\n%s", c.order, start, at, w)
 		}
 	}
 }

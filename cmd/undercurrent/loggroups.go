@@ -8,6 +8,7 @@ import (
 	"strings"
 
 	"undercurrent/ingest"
+	"undercurrent/report"
 )
 
 // Several survey logs in one run: how their groups are told apart and
@@ -21,16 +22,18 @@ import (
 // (found in review). The readings of one group value in several logs are
 // still one group when they lie together: a cart's two sensors logging
 // the same traverse at the same times, or a traverse continued in the
-// next file.
+// next file (after a pause or not).
 
 const (
 	// reusedApartM is how far apart, m, the horizontal extents of one
 	// group value's readings in two logs may lie and still be one group:
 	// a cart's sensors lie a metre or two apart.
 	reusedApartM = 5.0
-	// reusedApartS is how far apart in time, s, they may lie: a
-	// traverse continued in the next file starts within a few samples
-	// of its end in the one before.
+	// reusedApartS is how far apart in time, s, they may lie where they
+	// cover the same ground (sameGround): a cart's two loggers whose
+	// clocks differ a little. A traverse walked again later is another
+	// group; one continued end to end in the next file is one group
+	// after any pause.
 	reusedApartS = 60.0
 )
 
@@ -43,6 +46,15 @@ type readingSpan struct {
 
 func newReadingSpan() readingSpan {
 	return readingSpan{minX: math.Inf(1), maxX: math.Inf(-1), minY: math.Inf(1), maxY: math.Inf(-1), t0: math.NaN(), t1: math.NaN()}
+}
+
+// addSpan widens r to take in o.
+func (r *readingSpan) addSpan(o readingSpan) {
+	if o.minX > o.maxX {
+		return // no readings
+	}
+	r.add(o.minX, o.minY, o.t0)
+	r.add(o.maxX, o.maxY, o.t1)
 }
 
 func (r *readingSpan) add(x, y, t float64) {
@@ -70,23 +82,6 @@ func (r readingSpan) apart(o readingSpan) (dist, gap float64) {
 		gap = math.Max(0, math.Max(r.t0-o.t1, o.t0-r.t1))
 	}
 	return dist, gap
-}
-
-// span is where and when the readings fitted in g lie.
-func (g *group) span() readingSpan {
-	r := newReadingSpan()
-	times := g.stamps
-	if g.times != nil {
-		times = g.times // AC: the windows' centre times
-	}
-	for i, p := range g.points {
-		t := math.NaN()
-		if i < len(times) {
-			t = times[i]
-		}
-		r.add(p[0], p[1], t)
-	}
-	return r
 }
 
 // firstTime is the time of the group's first reading (AC: window), NaN
@@ -117,86 +112,276 @@ func logLabel(path string, logs []string) string {
 	return base
 }
 
-// separateReusedGroups looks at the group values of the log s (read from
-// path) that earlier logs of the run also have (index, the groups read so
-// far). A value whose readings here lie more than reusedApartM from that
-// group's readings, or more than reusedApartS before or after them, names
-// another traverse: its rows in s are renamed LOG:VALUE (logLabel), so
-// that it is fitted as a group of its own. It returns the warning saying
-// so ("" when nothing was renamed).
-func separateReusedGroups(index map[string]*group, path string, logs []string, s *ingest.Samples) string {
-	if s.Group == nil || len(index) == 0 {
-		return ""
-	}
-	spans := map[string]*readingSpan{}
+// logPart is the readings of one group value in one log: where and when
+// they lie, and their horizontal positions (for the line they follow).
+type logPart struct {
+	log  int // index into the logs
+	span readingSpan
+	xy   [][2]float64
+}
+
+// calendarTime reports whether t is a calendar time: Unix times from 1973
+// to 5138, as fmtBaseTime takes them (seconds from a logger's start are
+// not).
+func calendarTime(t float64) bool { return t > 1e8 && t < 1e11 }
+
+// partsOf returns the readings of each group value of s, in order of
+// first appearance.
+func partsOf(k int, s *ingest.Samples) (map[string]*logPart, []string) {
+	parts := map[string]*logPart{}
 	var order []string
+	if s.Group == nil {
+		return parts, nil
+	}
 	for i, v := range s.Group {
-		if v == "" || index[v] == nil {
+		if v == "" {
 			continue
 		}
-		sp := spans[v]
-		if sp == nil {
-			r := newReadingSpan()
-			sp = &r
-			spans[v] = sp
+		p := parts[v]
+		if p == nil {
+			p = &logPart{log: k, span: newReadingSpan()}
+			parts[v] = p
 			order = append(order, v)
 		}
 		t := math.NaN()
 		if !s.NoTime && i < len(s.Time) {
 			t = s.Time[i]
 		}
-		sp.add(s.X[i], s.Y[i], t)
+		p.span.add(s.X[i], s.Y[i], t)
+		p.xy = append(p.xy, [2]float64{s.X[i], s.Y[i]})
 	}
-	label := logLabel(path, logs)
-	renamed := map[string]string{}
-	var names, from []string
-	fromSeen := map[string]bool{}
-	minD, maxD, minG, maxG := math.Inf(1), 0.0, math.Inf(1), 0.0
-	timed := true
-	for _, v := range order {
-		g := index[v]
-		d, gap := g.span().apart(*spans[v])
-		timedHere := !math.IsNaN(gap)
-		if d <= reusedApartM && (!timedHere || gap <= reusedApartS) {
-			continue // one group: pooled as before
-		}
-		q := label + ":" + v
-		if index[q] != nil {
-			continue // the name is taken: left pooled rather than merged with another
-		}
-		renamed[v] = q
-		names = append(names, v)
-		if !fromSeen[g.from] {
-			fromSeen[g.from] = true
-			from = append(from, g.from)
-		}
-		minD, maxD = math.Min(minD, d), math.Max(maxD, d)
-		if timedHere {
-			minG, maxG = math.Min(minG, gap), math.Max(maxG, gap)
-		} else {
-			timed = false
+	return parts, order
+}
+
+// sameGround reports whether the parts a and b cover the same ground
+// along the line they follow (the principal axis of their positions
+// together): whether more than half of the shorter one's length along it
+// lies within the other's. Two parts of one traverse, one continuing
+// where the other stopped, meet end to end; a traverse walked again, or a
+// second sensor beside the first, covers the ground again.
+func sameGround(a, b *logPart) bool {
+	var mx, my float64
+	n := 0
+	for _, p := range [2]*logPart{a, b} {
+		for _, q := range p.xy {
+			mx, my = mx+q[0], my+q[1]
+			n++
 		}
 	}
-	if len(renamed) == 0 {
-		return ""
+	if n == 0 {
+		return false
 	}
-	for i, v := range s.Group {
-		if q, ok := renamed[v]; ok {
-			s.Group[i] = q
+	mx, my = mx/float64(n), my/float64(n)
+	var sxx, syy, sxy float64
+	for _, p := range [2]*logPart{a, b} {
+		for _, q := range p.xy {
+			dx, dy := q[0]-mx, q[1]-my
+			sxx, syy, sxy = sxx+dx*dx, syy+dy*dy, sxy+dx*dy
 		}
 	}
-	what := fmt.Sprintf("the group %s is", names[0])
-	now := fmt.Sprintf("a group of its own, named %s", renamed[names[0]])
-	if len(names) > 1 {
-		what = fmt.Sprintf("the groups %s are", listNames(names))
-		now = fmt.Sprintf("groups of their own, named %s (and so on)", renamed[names[0]])
+	th := 0.5 * math.Atan2(2*sxy, sxx-syy)
+	ux, uy := math.Cos(th), math.Sin(th)
+	along := func(p *logPart) (lo, hi float64) {
+		lo, hi = math.Inf(1), math.Inf(-1)
+		for _, q := range p.xy {
+			u := q[0]*ux + q[1]*uy
+			lo, hi = math.Min(lo, u), math.Max(hi, u)
+		}
+		return lo, hi
 	}
-	where := fmt.Sprintf("%s apart", rangeText(minD, maxD, "m"))
-	if timed {
-		where = fmt.Sprintf("%s and %s apart", rangeText(minD, maxD, "m"), rangeText(minG, maxG, "s"))
+	a0, a1 := along(a)
+	b0, b1 := along(b)
+	overlap := math.Min(a1, b1) - math.Max(a0, b0)
+	return overlap >= 0.5*math.Min(a1-a0, b1-b0)
+}
+
+// together reports whether the part p belongs to the group whose
+// readings so far are g: within reusedApartM of them and, where it covers
+// the same ground again, within reusedApartS of them in time (or either
+// without times). A traverse continued in the next file is one group
+// whatever the pause before it: a 90 s battery swap split one traverse
+// into two groups, the 15 readings after it fitted alone and failed
+// (found in review).
+func together(g, p *logPart) bool {
+	d, gap := g.span.apart(p.span)
+	if d > reusedApartM {
+		return false
 	}
-	return fmt.Sprintf("%s: %s also in %s, but the readings lie %s from those there: taken for another traverse under the same name, and fitted as %s. One group value in several logs is one group only where its readings lie within %g m and %g s of each other (a cart's two sensors, or a traverse continued in the next file); to name the groups otherwise, rename them in one of the files",
-		path, what, strings.Join(from, " and "), where, now, reusedApartM, reusedApartS)
+	return math.IsNaN(gap) || gap <= reusedApartS || !sameGround(g, p)
+}
+
+// nameReusedGroups tells apart the traverses that several logs (logs,
+// read as all) give the same group value. The parts of one value are
+// taken in the order of their first readings' times (the order the logs
+// were given in when their times are not calendar times): the first keeps
+// the value, and each later part joins the first group it lies together
+// with (together); one that lies together with none is another traverse,
+// and its rows are renamed LOG:VALUE (logLabel) to be fitted as a group
+// of its own. The name thus stays with the earliest log whatever the
+// order on the command line (before, the first log given kept the bare
+// names, and the names in every output changed with the order; found in
+// review). It returns a warning for each log whose groups were renamed.
+func nameReusedGroups(logs []string, all []*ingest.Samples) []string {
+	if len(all) < 2 {
+		return nil
+	}
+	parts := make([]map[string]*logPart, len(all))
+	var values []string
+	seen := map[string]bool{}
+	taken := map[string]bool{} // every group value of every log
+	for k, s := range all {
+		var order []string
+		parts[k], order = partsOf(k, s)
+		for _, v := range order {
+			taken[v] = true
+			if !seen[v] {
+				seen[v] = true
+				values = append(values, v)
+			}
+		}
+	}
+	type renaming struct {
+		value, name string
+		dist, gap   float64
+	}
+	renamed := make([][]renaming, len(all))
+	holders := map[string][]int{} // the logs holding each renamed value, earliest first
+	calendar := true
+	for _, m := range parts {
+		for _, p := range m {
+			if !calendarTime(p.span.t0) {
+				calendar = false
+			}
+		}
+	}
+	for _, v := range values {
+		var ps []*logPart
+		for k := range all {
+			if p := parts[k][v]; p != nil {
+				ps = append(ps, p)
+			}
+		}
+		if len(ps) < 2 {
+			continue
+		}
+		if calendar {
+			sort.SliceStable(ps, func(a, b int) bool { return ps[a].span.t0 < ps[b].span.t0 })
+		}
+		type cluster struct {
+			name string
+			at   logPart // the readings so far
+		}
+		first := &cluster{name: v, at: *ps[0]}
+		first.at.xy = append([][2]float64(nil), ps[0].xy...)
+		clusters := []*cluster{first}
+		apart := false
+		for _, p := range ps[1:] {
+			var in *cluster
+			for _, c := range clusters {
+				if together(&c.at, p) {
+					in = c
+					break
+				}
+			}
+			if in == nil {
+				q := logLabel(logs[p.log], logs) + ":" + v
+				if taken[q] {
+					in = first // the name is taken: left pooled rather than merged with another
+				} else {
+					taken[q] = true
+					in = &cluster{name: q, at: logPart{log: p.log, span: newReadingSpan()}}
+					clusters = append(clusters, in)
+				}
+			}
+			if in != first {
+				d, gap := first.at.span.apart(p.span)
+				renamed[p.log] = append(renamed[p.log], renaming{value: v, name: in.name, dist: d, gap: gap})
+				apart = true
+			}
+			in.at.span.addSpan(p.span)
+			in.at.xy = append(in.at.xy, p.xy...)
+		}
+		if apart {
+			for _, p := range ps {
+				holders[v] = append(holders[v], p.log)
+			}
+		}
+	}
+	var warns []string
+	for k, rs := range renamed {
+		if len(rs) == 0 {
+			continue
+		}
+		to := map[string]string{}
+		var names []string
+		var from []string
+		fromSeen := map[int]bool{k: true}
+		minD, maxD, minG, maxG := math.Inf(1), 0.0, math.Inf(1), 0.0
+		// Times that are not calendar times (restarting at 0 in each
+		// log) say nothing of how far apart two logs' readings lie.
+		timed := calendar
+		for _, r := range rs {
+			to[r.value] = r.name
+			names = append(names, r.value)
+			for _, h := range holders[r.value] {
+				if !fromSeen[h] {
+					fromSeen[h] = true
+					from = append(from, logs[h])
+				}
+			}
+			minD, maxD = math.Min(minD, r.dist), math.Max(maxD, r.dist)
+			if math.IsNaN(r.gap) {
+				timed = false
+			} else {
+				minG, maxG = math.Min(minG, r.gap), math.Max(maxG, r.gap)
+			}
+		}
+		s := all[k]
+		for i, v := range s.Group {
+			if q, ok := to[v]; ok {
+				s.Group[i] = q
+			}
+		}
+		var keepers []string
+		keptSeen := map[int]bool{}
+		for _, r := range rs {
+			if h := holders[r.value][0]; !keptSeen[h] {
+				keptSeen[h] = true
+				keepers = append(keepers, logs[h])
+			}
+		}
+		what := fmt.Sprintf("the group %s is", names[0])
+		now := fmt.Sprintf("a group of its own, named %s", to[names[0]])
+		if len(names) > 1 {
+			what = fmt.Sprintf("the groups %s are", listNames(names))
+			now = fmt.Sprintf("groups of their own, named %s (and so on)", to[names[0]])
+		}
+		where := fmt.Sprintf("%s apart", rangeText(minD, maxD, "m"))
+		if timed {
+			where = fmt.Sprintf("%s and %s apart", rangeText(minD, maxD, "m"), rangeText(minG, maxG, "s"))
+		}
+		keeps := "which keeps the names, its readings coming first"
+		if len(keepers) > 1 {
+			keeps = "which keep the names, their readings coming first"
+		}
+		if !calendar {
+			keeps = "which keeps the names, given first (the logs' times are not calendar times)"
+			if len(keepers) > 1 {
+				keeps = "which keep the names, given first (the logs' times are not calendar times)"
+			}
+		}
+		warns = append(warns, fmt.Sprintf("%s: %s also in %s, but the readings lie %s from those of %s, %s: taken for another traverse under the same name, and fitted as %s. One group value in several logs is one group where its readings lie within %g m of each other, unless they cover the same ground again more than %g s apart (a cart's two sensors, or a traverse continued in the next file after any pause, are one group; a traverse walked again later is another); to name the groups otherwise, rename them in one of the files",
+			logs[k], what, joinAnd(from), where, joinAnd(keepers), keeps, now, reusedApartM, reusedApartS))
+	}
+	return warns
+}
+
+// joinAnd joins names as "a", "a and b", "a, b and c".
+func joinAnd(names []string) string {
+	if len(names) < 2 {
+		return strings.Join(names, "")
+	}
+	return strings.Join(names[:len(names)-1], ", ") + " and " + names[len(names)-1]
 }
 
 // listNames lists up to eight names, else six and how many more there
@@ -230,7 +415,11 @@ func rangeText(lo, hi float64, unit string) string {
 // another; found in review). A single log keeps its own order. Times that
 // are not calendar times (seconds from a logger's start, which restart at
 // 0 in each file, or none) do not order logs: then the order given is
-// kept, and the returned warning says so.
+// kept, and the returned warning says so. The warning names no group: the
+// route is turned to agree with the order given as a whole, so chainage 0
+// need not be at the first log's first group (it named one in the middle
+// of the route; found in review); routeStartNote adds the group the built
+// route starts at.
 func orderGroupsByTime(sv *survey, logs []string) string {
 	if len(logs) < 2 || len(sv.groups) < 2 {
 		return ""
@@ -238,14 +427,13 @@ func orderGroupsByTime(sv *survey, logs []string) string {
 	first := make(map[*group]float64, len(sv.groups))
 	for _, g := range sv.groups {
 		t := g.firstTime()
-		// Unix times from 1973 to 5138, as fmtBaseTime takes them.
-		if !(t > 1e8 && t < 1e11) {
+		if !calendarTime(t) {
 			what := "has no times"
 			if !math.IsNaN(t) {
 				what = fmt.Sprintf("has times that are not calendar times (group %s starts at %s)", groupName(g.key), fmtBaseTime(t))
 			}
-			return fmt.Sprintf("%s %s, so the groups of the %d logs are taken in the order the logs were given in: the first log's first group (%s) sets chainage 0 and the route's direction (and the sign of a DC current); give the logs in the order walked, or logs with calendar times, whose groups are put in time order",
-				g.from, what, len(logs), groupName(sv.groups[0].key))
+			return fmt.Sprintf("%s %s, so the groups of the %d logs are taken in the order the logs were given in, and that order decides which end of the route is chainage 0 and the route's direction (and the sign of a DC current)%s; give the logs in the order walked, or logs with calendar times, whose groups are put in time order",
+				g.from, what, len(logs), routeStartMark)
 		}
 		first[g] = t
 	}
@@ -257,6 +445,24 @@ func orderGroupsByTime(sv *survey, logs []string) string {
 		return ga.key < gb.key
 	})
 	return ""
+}
+
+// routeStartMark marks where routeStartNote names the group the route
+// starts at in orderGroupsByTime's warning; it is taken out when there is
+// no route.
+const routeStartMark = "\x00route-start\x00"
+
+// routeStartNote puts into the warnings the group the built route starts
+// at (chainage 0) where orderGroupsByTime's warning marks it, or takes
+// the mark out when the document has no route.
+func routeStartNote(doc *report.Document) {
+	at := ""
+	if doc.Route != nil && len(doc.Route.Stations) > 0 {
+		at = fmt.Sprintf(": here chainage 0 is at %s, and chainage increases towards %s", doc.Route.Stations[0].Key, doc.Route.Stations[len(doc.Route.Stations)-1].Key)
+	}
+	for i, w := range doc.Warnings {
+		doc.Warnings[i] = strings.Replace(w, routeStartMark, at, 1)
+	}
 }
 
 // groupName quotes a group's key for messages ("" is the whole log).
