@@ -1073,19 +1073,10 @@ func buildProfile(f *Fit, max int) (*Profile, error) {
 	}
 	re := func(c complex128) float64 { return real(c) }
 	im := func(c complex128) float64 { return imag(c) }
-	pr, err := NewProfile(p.Points, part(p.Phasors, re), part(res.PredictedPhasors, re), s.Point, s.Dir, ComponentACInPhase, max)
-	if err != nil {
-		return nil, err
-	}
-	// The same positions, point and direction sort and thin the readings
-	// the same way (NewProfile's sort is stable), so the quadrature parts
-	// line up with the in-phase ones reading by reading.
-	q, err := NewProfile(p.Points, part(p.Phasors, im), part(res.PredictedPhasors, im), s.Point, s.Dir, ComponentACInPhase, max)
-	if err != nil {
-		return nil, err
-	}
-	pr.MeasuredQuadrature, pr.PredictedQuadrature = q.Measured, q.Predicted
-	return pr, nil
+	// The in-phase and quadrature parts of the same readings, chosen once
+	// from the misfits and peaks of both, line up reading by reading.
+	return newProfile(p.Points, s.Point, s.Dir, ComponentACInPhase, max,
+		part(p.Phasors, re), part(res.PredictedPhasors, re), part(p.Phasors, im), part(res.PredictedPhasors, im))
 }
 
 func centroid(pts [][3]float64) [3]float64 {

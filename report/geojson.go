@@ -303,15 +303,83 @@ func (d *Document) point(p [3]float64) geometry {
 	return geometry{Type: "Point", Coordinates: json.RawMessage(d.position(p))}
 }
 
-func (d *Document) line(pts [][3]float64) geometry {
-	b := []byte{'['}
-	for i, p := range pts {
-		if i > 0 {
-			b = append(b, ',')
+// lineParts formats a polyline's coordinates as GeoJSON position arrays:
+// one, unless the line crosses the antimeridian. Longitudes are given in
+// (-180, 180], so a step across the 180th meridian written as it is (from
+// 179.99997 to -179.99993) is drawn by a GIS as a line round the whole
+// globe; RFC 7946 section 3.1.9 says such a line SHOULD be cut in two, the
+// parts meeting at the meridian (longitude 180 on one side, -180 on the
+// other, at the latitude interpolated linearly in degrees between the two
+// positions either side). A part left with fewer than two distinct
+// positions (a line ending on the meridian) is dropped.
+func (d *Document) lineParts(pts [][3]float64) [][]byte {
+	type pos struct{ lon, lat float64 }
+	var ll []pos
+	for _, p := range pts {
+		lon, lat, ok := d.wgs84(p)
+		if !ok {
+			ll = nil
+			break
 		}
-		b = append(b, d.position(p)...)
+		ll = append(ll, pos{lon, lat})
 	}
-	return geometry{Type: "LineString", Coordinates: json.RawMessage(append(b, ']'))}
+	if ll == nil {
+		b := []byte{'['}
+		for i, p := range pts {
+			if i > 0 {
+				b = append(b, ',')
+			}
+			b = append(b, d.position(p)...)
+		}
+		return [][]byte{append(b, ']')}
+	}
+	var parts [][]byte
+	var cur []string
+	add := func(lon, lat float64) {
+		s := "[" + fix(lon, 8) + "," + fix(lat, 8) + "]"
+		if len(cur) == 0 || cur[len(cur)-1] != s {
+			cur = append(cur, s)
+		}
+	}
+	flush := func() {
+		if len(cur) > 1 {
+			parts = append(parts, []byte("["+strings.Join(cur, ",")+"]"))
+		}
+		cur = nil
+	}
+	for i, p := range ll {
+		if i > 0 {
+			q := ll[i-1]
+			if dl := p.lon - q.lon; math.Abs(dl) > 180 {
+				edge := 180.0 // the meridian as seen from q's side
+				if q.lon < 0 {
+					edge = -180
+				}
+				lon := p.lon + 360 // p unwrapped onto q's side
+				if edge < 0 {
+					lon = p.lon - 360
+				}
+				t := (edge - q.lon) / (lon - q.lon)
+				lat := q.lat + t*(p.lat-q.lat)
+				add(edge, lat)
+				flush()
+				add(-edge, lat)
+			}
+		}
+		add(p.lon, p.lat)
+	}
+	flush()
+	return parts
+}
+
+// line is pts as a LineString, or as a MultiLineString when it crosses the
+// antimeridian (lineParts).
+func (d *Document) line(pts [][3]float64) geometry {
+	parts := d.lineParts(pts)
+	if len(parts) == 1 {
+		return geometry{Type: "LineString", Coordinates: json.RawMessage(parts[0])}
+	}
+	return geometry{Type: "MultiLineString", Coordinates: json.RawMessage("[" + string(bytes.Join(parts, []byte{','})) + "]")}
 }
 
 func along(p, dir [3]float64, t float64) [3]float64 {
@@ -466,15 +534,21 @@ func (d *Document) routeFeature(r *Route, props map[string]any) (f feature, ok b
 	}
 	var length float64
 	var n int
-	lines := make([][]byte, len(parts))
-	for i, part := range parts {
+	var lines [][]byte
+	var cut bool
+	for _, part := range parts {
 		pts := make([][3]float64, len(part))
 		for j, s := range part {
 			pts[j] = s.Point
 		}
-		lines[i] = d.line(pts).Coordinates
+		l := d.lineParts(pts)
+		cut = cut || len(l) > 1
+		lines = append(lines, l...)
 		length += part[len(part)-1].Chainage - part[0].Chainage
 		n += len(part)
+	}
+	if len(lines) == 0 {
+		return feature{}, false
 	}
 	props["feature"] = "route"
 	props["length_m"] = round(length, 3)
@@ -487,6 +561,11 @@ func (d *Document) routeFeature(r *Route, props map[string]any) (f feature, ok b
 	}
 	if len(parts) > 1 {
 		props["parts"] = len(parts)
+	}
+	if cut {
+		props["antimeridian_note"] = "The line crosses the 180th meridian and is cut there into parts that end at longitude 180 and -180 (RFC 7946, section 3.1.9)."
+	}
+	if len(lines) > 1 {
 		geom = geometry{Type: "MultiLineString", Coordinates: json.RawMessage("[" + string(bytes.Join(lines, []byte{','})) + "]")}
 	}
 	return feature{Type: "Feature", Geometry: geom, Properties: props}, true

@@ -57,18 +57,25 @@ type view struct {
 	// column reads "n/a".
 	CoverNA bool
 	// InputsNA is true when an input has no readings to count.
-	InputsNA   bool
-	Counts     string
-	Findings   []findingRow
-	Cautions   []string
-	Plan       template.HTML
-	Current    template.HTML
-	Depth      template.HTML
-	DepthNote  string
-	Tracks     []trackView
-	Profiles   []template.HTML
-	Groups     []groupRow
-	FitNotes   []string
+	InputsNA bool
+	Counts   string
+	Findings []findingRow
+	Cautions []string
+	// CautionShort is the one-line caution printed on every page.
+	CautionShort string
+	// GroupCols is the number of columns of the table of every group.
+	GroupCols int
+	Plan      template.HTML
+	Current   template.HTML
+	Depth     template.HTML
+	DepthNote string
+	Tracks    []trackView
+	Profiles  []template.HTML
+	Groups    []groupRow
+	FitNotes  []string
+	// FitDetails are the failed or poor groups' problems, group by group,
+	// printed under the table of every group.
+	FitDetails [][2]string
 	DepthRef   string
 	CoverSigma string // what the cover sigmas include; empty without cover
 	FrameText  string
@@ -131,7 +138,11 @@ type findingRow struct {
 // groupRow is one line of the table of groups; the per-source columns hold
 // one entry per source, shown one under the other.
 type groupRow struct {
-	Key, Chainage, RMS, Points, Status    string
+	Key, Chainage, RMS, Points, Status string
+	// StatusShort is Status without why a fit failed or is poor, for
+	// print, where the column is too narrow for the why; empty for a
+	// sound fit.
+	StatusShort                           string
 	Current, Phase, Depth, Cover, Azimuth []string
 	// Position is each source's position (the point of the conductor
 	// nearest the centre of the group's readings, point_m in the result
@@ -148,7 +159,14 @@ type groupRow struct {
 }
 
 func newView(d *Document) (*view, error) {
-	v := &view{D: d, Cautions: Cautions}
+	v := &view{D: d, Cautions: Cautions, CautionShort: CautionShort}
+	v.GroupCols = 10
+	if len(d.Conductors) > 0 {
+		v.GroupCols++
+	}
+	if d.Signal.Mode == SignalAC {
+		v.GroupCols++
+	}
 	v.Title = d.Title
 	if v.Title == "" {
 		v.Title = "Buried conductor estimate"
@@ -196,7 +214,11 @@ func newView(d *Document) (*view, error) {
 		})
 	}
 	for i := range d.Groups {
-		v.Groups = append(v.Groups, v.groupRow(&d.Groups[i]))
+		r := v.groupRow(&d.Groups[i])
+		v.Groups = append(v.Groups, r)
+		if r.StatusShort != "" {
+			v.FitDetails = append(v.FitDetails, [2]string{r.Key, d.Groups[i].Problem})
+		}
 	}
 	v.FitNotes = fitNotes(d)
 	if err := v.plots(); err != nil {
@@ -410,12 +432,13 @@ func (v *view) groupRow(g *Group) groupRow {
 	case !g.OK:
 		r.Status = "failed"
 		if g.Problem != "" {
-			r.Status += ": " + g.Problem
+			r.StatusShort, r.Status = r.Status, r.Status+": "+g.Problem
 		}
 	case g.Problem != "":
 		// Converged and used, but poor or ambiguous: the route's findings
 		// say "used with care".
-		r.Status = "poor or ambiguous, used with care: " + g.Problem
+		r.StatusShort = "poor or ambiguous, used with care"
+		r.Status = r.StatusShort + ": " + g.Problem
 	default:
 		r.Status = "ok"
 		lines, objects := 0, 0

@@ -129,7 +129,7 @@ func TestWriteFiles(t *testing.T) {
 	}
 	defer f.Close()
 	back, err := ReadJSON(f, FileJSON)
-	if err != nil || !reflect.DeepEqual(back, d) {
+	if err != nil || !reflect.DeepEqual(back, profilesRounded(d)) {
 		t.Errorf("results.json does not read back: %v", err)
 	}
 	entries, _ := os.ReadDir(dir)

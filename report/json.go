@@ -6,6 +6,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"math"
 )
 
 // WriteJSON writes d as indented JSON followed by a newline, after
@@ -96,6 +97,9 @@ func (d *Document) normalized() *Document {
 	for i := range c.Groups {
 		if c.Groups[i].Sources == nil {
 			c.Groups[i].Sources = []Source{}
+		}
+		if pr := c.Groups[i].Profile; pr != nil {
+			c.Groups[i].Profile = pr.rounded()
 		}
 	}
 	if d.Route != nil {
@@ -204,4 +208,56 @@ func numberArrayEnd(b []byte, i int) (int, bool) {
 		}
 	}
 	return 0, false
+}
+
+// Rounding of a Profile's numbers in results.json: positions and offsets
+// to the millimetre, fields to 0.01 nT. A profile is data for a plot (a figure a
+// few hundred points wide shows neither), and written at full precision
+// (17 significant digits, 3.9400000000000004) it was four fifths of a long
+// survey's results.json. The fitted results keep full precision.
+const (
+	profileMetres    = 1e3 // steps per metre
+	profileNanotesla = 1e2 // steps per nanotesla
+)
+
+// rounded returns a copy of p with its numbers rounded for writing.
+func (p *Profile) rounded() *Profile {
+	r := func(v, scale float64) float64 {
+		// Divided by a power of ten, the rounded value is the double
+		// nearest the decimal, which JSON prints in its fewest digits
+		// (3.94, not 3.9400000000000004).
+		q := math.Round(v*scale) / scale
+		if q == 0 { // no "-0"
+			return 0
+		}
+		if math.IsInf(q, 0) || math.IsNaN(q) {
+			return v
+		}
+		return q
+	}
+	vec := func(vs [][3]float64, scale float64) [][3]float64 {
+		if vs == nil {
+			return nil
+		}
+		out := make([][3]float64, len(vs))
+		for i, v := range vs {
+			for k := range 3 {
+				out[i][k] = r(v[k], scale)
+			}
+		}
+		return out
+	}
+	c := *p
+	c.Positions = vec(p.Positions, profileMetres)
+	if p.Offset != nil {
+		c.Offset = make([]float64, len(p.Offset))
+		for i, v := range p.Offset {
+			c.Offset[i] = r(v, profileMetres)
+		}
+	}
+	c.Measured = vec(p.Measured, profileNanotesla)
+	c.Predicted = vec(p.Predicted, profileNanotesla)
+	c.MeasuredQuadrature = vec(p.MeasuredQuadrature, profileNanotesla)
+	c.PredictedQuadrature = vec(p.PredictedQuadrature, profileNanotesla)
+	return &c
 }

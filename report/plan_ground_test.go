@@ -26,7 +26,10 @@ func groupsTable(t *testing.T, page string) (heads []string, rows map[string][][
 		t.Fatal("page has no table of groups")
 	}
 	cell := regexp.MustCompile(`(?s)<t[hd](?:\s[^>]*)?>(.*?)</t[hd]>`)
-	for _, c := range cell.FindAllStringSubmatch(regexp.MustCompile(`(?s)<thead>(.*?)</thead>`).FindString(m[1]), -1) {
+	// The head's print-only row (the caution repeated on each printed
+	// page) is not a heading.
+	head := regexp.MustCompile(`(?s)<tr class="print-only">.*?</tr>`).ReplaceAllString(regexp.MustCompile(`(?s)<thead>(.*?)</thead>`).FindString(m[1]), "")
+	for _, c := range cell.FindAllStringSubmatch(head, -1) {
 		heads = append(heads, html.UnescapeString(c[1]))
 	}
 	rows = map[string][][]string{}

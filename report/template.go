@@ -70,10 +70,26 @@ code { font-size: .85em; word-break: break-all; }
 table.groups { font-size: .85rem; }
 table.groups th, table.groups td { padding: .25rem .35rem; }
 footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rule); color: var(--muted); font-size: .8rem; }
-@page { size: A4; margin: 14mm 12mm; }
+.print-only { display: none; }
+/* On paper every page carries the one-line caution and the title at its
+   foot, and the table of every group repeats its head (with the caution)
+   on each page it runs to: a page taken from the report alone, a page of
+   depths handed to an excavation crew, still says to confirm them. */
+@page { size: A4; margin: 14mm 12mm 18mm;
+  @bottom-left { content: "{{.Title}}: {{.CautionShort}}"; font: 7pt "Liberation Sans", Arial, Helvetica, sans-serif; color: #1f2933; vertical-align: top; padding-top: 3mm; }
+  @bottom-right { content: "page " counter(page) " of " counter(pages); font: 7pt "Liberation Sans", Arial, Helvetica, sans-serif; color: #1f2933; vertical-align: top; padding-top: 3mm; }
+}
 @media print {
+  thead { display: table-header-group; }
+  tr.print-only th { background: none; font-weight: 600; font-size: 7pt; border-bottom: 1.5px solid var(--ink); }
+  /* The Fit column held a poor fit's whole explanation: squeezed to
+     1.5 cm by the numbers' columns, one row ran to a third of a page. On
+     paper it gives the status, and the explanations follow the table. */
+  table.groups th.fit, table.groups td.fit { min-width: 3.2cm; }
+  .fit-detail { display: none; }
+  .print-only, tr.print-only { display: revert; }
   body { max-width: none; padding: 0; font-size: 10.5pt; }
-  h2 { break-after: avoid; page-break-after: avoid; }
+  h2, h3 { break-after: avoid; page-break-after: avoid; }
   table, .cautions { break-inside: auto; }
   tr { break-inside: avoid; page-break-inside: avoid; }
   .wide { overflow: visible; }
@@ -146,7 +162,7 @@ footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rul
 
 {{end}}{{if .Profiles}}<section>
 <h2>Measured and fitted field</h2>
-<p>For a few groups: the field measured (markers) and the field of the fitted model (lines), east, north and up components, across the conductor, both less the fitted uniform background.{{if .Quadrature}} For AC each group has two panels: the RMS field in phase with the strongest conductor's current, and in quadrature with it (a quarter cycle apart). A good fit runs through the markers in both: where the conductors differ in phase (the cores of a three-phase cable, a cable beside a lagging pipe) a fit can miss mostly in quadrature and still look good in phase.{{else}} A good fit runs through the markers.{{end}}</p>
+<p>For a few groups: the field measured (markers) and the field of the fitted model (lines), east, north and up components, across the conductor, both less the fitted uniform background.{{if .Quadrature}} For AC each group has two panels: the RMS field in phase with the strongest conductor's current, and in quadrature with it (a quarter cycle apart). A good fit runs through the markers in both: where the conductors differ in phase (the cores of a three-phase cable, a cable beside a lagging pipe) a fit can miss mostly in quadrature and still look good in phase.{{else}} A good fit runs through the markers.{{end}} Where a group has more readings than are drawn (240), every few readings across it are drawn and, beside them, always those the fit misses most and the peaks, so that what made a fit poor (a spike, a bend) shows.</p>
 {{range .Profiles}}<figure>{{.}}</figure>
 {{end}}</section>
 {{end}}
@@ -154,12 +170,17 @@ footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rul
 <section>
 <h2>Every group</h2>
 <div class="wide"><table class="groups">
-<thead><tr><th>Group</th><th>Chainage (m)</th>{{if .D.Conductors}}<th>Conductor</th>{{end}}<th>Current (A)</th>{{if eq .D.Signal.Mode "ac"}}<th>Phase (°)</th>{{end}}<th>Depth (m)</th><th>Cover (m){{if .CoverNA}}*{{end}}</th><th>{{if .D.Frame.Origin}}Lat, lon (°){{else}}E, N (m){{end}}</th><th>Azimuth (°)</th><th>RMS (nT)</th><th>Readings</th><th>Fit</th></tr></thead>
+<thead><tr class="print-only"><th colspan="{{.GroupCols}}">{{.CautionShort}}</th></tr>
+<tr><th>Group</th><th>Chainage (m)</th>{{if .D.Conductors}}<th>Conductor</th>{{end}}<th>Current (A)</th>{{if eq .D.Signal.Mode "ac"}}<th>Phase (°)</th>{{end}}<th>Depth (m)</th><th>Cover (m){{if .CoverNA}}*{{end}}</th><th>{{if .D.Frame.Origin}}Lat, lon (°){{else}}E, N (m){{end}}</th><th>Azimuth (°)</th><th>RMS (nT)</th><th>Readings</th><th class="fit">Fit</th></tr></thead>
 <tbody>
-{{$ac := eq .D.Signal.Mode "ac"}}{{$tracks := .D.Conductors}}{{range .Groups}}<tr{{if .Bad}} class="bad"{{end}}><td>{{.Key}}</td><td class="num">{{.Chainage}}</td>{{if $tracks}}<td class="num">{{range $i, $v := .Conductor}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{end}}<td class="num">{{range $i, $v := .Current}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{if $ac}}<td class="num">{{range $i, $v := .Phase}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{end}}<td class="num">{{range $i, $v := .Depth}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td><td class="num">{{range $i, $v := .Cover}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td><td class="num">{{range $i, $v := .Position}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td><td class="num">{{range $i, $v := .Azimuth}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td><td class="num">{{.RMS}}</td><td class="num">{{.Points}}</td><td>{{.Status}}</td></tr>
+{{$ac := eq .D.Signal.Mode "ac"}}{{$tracks := .D.Conductors}}{{range .Groups}}<tr{{if .Bad}} class="bad"{{end}}><td>{{.Key}}</td><td class="num">{{.Chainage}}</td>{{if $tracks}}<td class="num">{{range $i, $v := .Conductor}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{end}}<td class="num">{{range $i, $v := .Current}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{if $ac}}<td class="num">{{range $i, $v := .Phase}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{end}}<td class="num">{{range $i, $v := .Depth}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td><td class="num">{{range $i, $v := .Cover}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td><td class="num">{{range $i, $v := .Position}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td><td class="num">{{range $i, $v := .Azimuth}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td><td class="num">{{.RMS}}</td><td class="num">{{.Points}}</td><td class="fit">{{if .StatusShort}}<span class="fit-detail">{{.Status}}</span><span class="print-only">{{.StatusShort}} (why: below the table)</span>{{else}}{{.Status}}{{end}}</td></tr>
 {{end}}</tbody>
 </table></div>
 <p class="values">One line per fitted conductor, strongest first. {{if .D.Frame.Origin}}Lat, lon{{else}}E, N{{end}}: where each conductor passes closest to the centre of its group's readings (for an object, where it lies; for a pair of lines not told apart, the pair's centre){{if .D.Frame.Origin}}, WGS84 latitude and longitude in decimal degrees, negative south and west (results.csv and results.json give the local east and north too){{else}}, local east and north in metres as on the plan view{{end}}.{{if .D.Conductors}} Conductor: 1 for the one the route follows, 2, 3, ... for the further conductors followed along it, – for a source in no track. Chainage is along the route (conductor 1); a further conductor's own chainage, measured along it from its first station as its findings give it, follows its number in brackets where it differs.{{end}} Uncertainties are one standard deviation from the reading noise only; they do not count the error of the model, which is often many times larger{{with .Scatter}} (see the realistic spread in the summary){{end}}. Depth is {{.DepthRef}}.{{if .CoverNA}} *Cover n/a: the sensors' height above the ground was not given, so the depth of cover below the ground cannot be computed (give it with --sensor-height, or the ground level with --reference-z).{{end}}</p>
+{{if .FitDetails}}<div class="print-only"><h3>Why fits failed or are poor</h3>
+<ul class="values">
+{{range .FitDetails}}<li>{{index . 0}}: {{index . 1}}</li>
+{{end}}</ul></div>{{end}}
 {{if .FitNotes}}<h3>Notes from the fits</h3>
 <ul class="values">
 {{range .FitNotes}}<li>{{.}}</li>
