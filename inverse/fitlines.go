@@ -36,6 +36,12 @@ type candidate struct {
 	// (keepsUnresolvedLine), for the fall of the criterion it gives; report
 	// marks that line (UnresolvedKeptNote).
 	keptGain float64
+	// keptFrom is the fit with one line fewer that the automatic count kept this
+	// fit over, and keptFromScore its criterion: the count returns to it when the
+	// next count shows the kept line does not account for what the readings ask
+	// for (see run).
+	keptFrom      *candidate
+	keptFromScore float64
 }
 
 // FitLines finds straight line currents (conductors) and a background from field
@@ -262,6 +268,7 @@ func (f *fitter) run() (*Result, error) {
 				// Kept with its line whose current is not resolved: see
 				// keepsUnresolvedLine.
 				c.keptGain = bestScore - crit
+				c.keptFrom, c.keptFromScore = best, bestScore
 			} else if why != "" {
 				sc.Rejected, weak = why, w
 				if k < s.MaxCount && collapsed(c.sp, c.x) {
@@ -297,6 +304,29 @@ func (f *fitter) run() (*Result, error) {
 			continue
 		}
 		if sc.Rejected != "" {
+			if weak >= 0 && best != nil && best.keptFrom != nil && bestScore-crit > pairGain && !f.atNoise(best.sp, best.rss) {
+				// The fit accepted holds a line kept unresolved
+				// (keepsUnresolvedLine), still misses the noise, and a
+				// further line lowers the criterion by more than pairGain:
+				// the kept line does not stand for what the readings ask
+				// for (a conductor beyond the traverse's end would leave
+				// the fit at the noise), and it is dropped; the count is
+				// judged from the fit without it, as before it was kept.
+				// Beside a 20 A cable, a steel object 1.3 m past a
+				// traverse's end was fitted as a kept line 1.3 m from the
+				// cable at the azimuth bound, three lines lowering the
+				// criterion by 63 more: the fit then carried both this
+				// note and UnresolvedLinesNote, and the cable's offset
+				// moved 2.5 sigma from the truth
+				// (TestKeptLineDroppedWhenMoreLinesAsked).
+				kc := len(best.sp.geom)
+				for i := range scores {
+					if scores[i].Count == kc {
+						scores[i].Rejected = fmt.Sprintf("a further line whose current is not resolved, dropped: the fit with it misses the noise and %d lines lower the criterion by %.3g more", k, bestScore-crit)
+					}
+				}
+				best, bestScore = best.keptFrom, best.keptFromScore
+			}
 			if weak >= 0 && best != nil && len(best.sp.geom) < k && !f.atNoise(best.sp, best.rss) {
 				// Refused for a line whose current the data do not resolve,
 				// after a count that misses the noise: the count's lines less
@@ -1928,7 +1958,9 @@ func (f *fitter) guardBut(c *candidate, gain float64, skip int) (why string, wea
 // criterion falls by more than pairGain, and that line lies farther from each
 // other line than the deeper of the two lies below the sensors (nearer, it would be
 // part of a split or a pair of one conductor, which the guard's other rules judge),
-// and its current is nearly uncorrelated with theirs (keptCorrelation).
+// no deeper below the sensors than the readings' half-width (extent), and its
+// current is nearly uncorrelated with theirs (keptCorrelation). The count drops the
+// line again when a further line still lowers the criterion (see run).
 //
 // A line's current sigma is linearised about its position: a conductor crossing a
 // traverse's line beyond its end, seen only as a gradient across the readings,
@@ -1975,6 +2007,22 @@ func (f *fitter) keepsUnresolvedLine(c, best *candidate, gain float64) bool {
 		return false
 	}
 	w := su.lines[weak]
+	if d := f.sv.zmean - w.Point[2]; !(d <= f.sv.extent) {
+		// A conductor the readings see only by its gradient, beyond a
+		// traverse's end, lies out beside the readings, not far below
+		// them. A line deeper below the sensors than the readings'
+		// half-width stands for a field that changes slowly over all of
+		// them, which a line at any such depth reproduces (see misplaced):
+		// the readings give it no depth. On a lone cable whose depth
+		// changes along the route (dipping 4 degrees, or stepping 1.2 m
+		// down), a line 12 to 14 m below 10 m traverses, its azimuth at
+		// the bound, was kept for the cable's own curvature, and the
+		// cable's current and depth moved 2 to 4 sigma further from the
+		// truth while the fit looked clean (TestKeptLineNotDeepOnDippingCable).
+		// Kept lines beyond the ends of such traverses (bends, elbows,
+		// services) lay 0.4 to 2 m below the sensors.
+		return false
+	}
 	for i, e := range su.lines {
 		if i == weak || e.Kind != "line" {
 			continue

@@ -976,7 +976,7 @@ func keptNote(e *SourceEstimate) bool {
 // markKept marks in r the line of the fit whose current the readings
 // do not resolve, kept by the automatic count for the fall gain of the criterion it
 // gives (keepsUnresolvedLine): none of its quantities is identifiable, and notes on
-// it and on the fit say why it is there.
+// it and on the fit say why it is there (its other notes are dropped).
 func (f *fitter) markKept(r *Result, gain float64) {
 	inPair := make([]bool, len(r.Sources))
 	for _, pe := range r.Pairs {
@@ -996,8 +996,12 @@ func (f *fitter) markKept(r *Result, gain float64) {
 		if e.Identifiable.Current {
 			cur = fmt.Sprintf("%.3g ± %.2g %s, within %.3g sigma of zero", math.Abs(e.Current), e.CurrentSigma, unit, k)
 		}
-		e.Notes = slices.DeleteFunc(e.Notes, func(n string) bool { return strings.HasPrefix(n, "current not significantly different from zero") })
-		e.Notes = append(e.Notes, fmt.Sprintf("%s: its current (%s) and its position trade against each other (a conductor seen only by its gradient, as beyond the traverse's ends), so none of them is determined and it marks no conductor; it is kept so that its field does not bias the other lines", UnresolvedKeptNote, cur))
+		// The line's other notes speak of quantities the readings do not
+		// fix (its azimuth at the search bound, a weak current, its current
+		// near zero): beside this note they read as if those were given
+		// ("azimuth stopped at the bound" beside "none of them is
+		// determined"), so this note replaces them.
+		e.Notes = []string{fmt.Sprintf("%s: its current (%s) and its position trade against each other (a conductor seen only by its gradient, as beyond the traverse's ends), so none of them is determined and it marks no conductor; it is kept so that its field does not bias the other lines", UnresolvedKeptNote, cur)}
 		e.Identifiable = Identifiable{}
 		e.CurrentSigma, e.PhaseSigma, e.RelativePhaseSigma = 0, 0, 0
 		e.DepthSigma, e.OffsetSigma, e.AzimuthSigma, e.DipSigma = 0, 0, 0, 0
