@@ -321,6 +321,7 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 	caveatMisfitSteps(r, modelMisses(fits, &bs, rs, shared != "" || bs.Noise <= 0 && rs.MaxReducedChi2 < 0))
 	if pairRoute {
 		caveatPartnerSteps(r, fits)
+		caveatTradedSteps(r, fits, ac)
 	}
 	d.SetRoute(r)
 	if d.Route != nil {
