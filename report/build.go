@@ -54,6 +54,9 @@ type Fit struct {
 	partner       int
 	partnerChosen bool
 	partnerOdd    string
+	// weak are the indices into Result.Sources of the weak lines beside
+	// the pair that its net current takes in (chooseWeak, partner.go).
+	weak []int
 }
 
 // BuildSettings tunes Build. A nil *BuildSettings or a zero field takes the
@@ -238,6 +241,9 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 		// The strongest line's partner core, the same along the route
 		// (partner.go).
 		choosePartners(fits, ac)
+		// The weak lines beside it that its net current takes in, each
+		// decided once along the route (partner.go).
+		chooseWeak(fits, ac)
 		stations = make([]route.Station, 0, len(fits))
 		pairRoute = followsPair(fits, ac)
 		for _, f := range fits {
@@ -315,6 +321,7 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 	caveatMisfitSteps(r, modelMisses(fits, &bs, rs, shared != "" || bs.Noise <= 0 && rs.MaxReducedChi2 < 0))
 	if pairRoute {
 		caveatPartnerSteps(r, fits)
+		caveatTradedSteps(r, fits, ac)
 	}
 	d.SetRoute(r)
 	if d.Route != nil {

@@ -663,6 +663,7 @@ func buildTracks(fits []Fit, r *route.Route, rs *route.Settings, minStations int
 		}
 		if pairRoute {
 			caveatWeakTrackSteps(tr, fits, members, ac)
+			caveatTradedTrackSteps(tr, r, fits, members, ac)
 		}
 		out = append(out, builtTrack{number: n, members: members, offset: median(off), route: tr, pair: members[0].pair != nil})
 	}
