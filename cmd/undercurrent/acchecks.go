@@ -369,30 +369,108 @@ func (pl demodPlan) settings(freq, win float64, h []int) *calibrate.DemodSetting
 // 5.5 sigma off (found in review); the 9th and above were clean.
 var ownHarmonics = []int{2, 3, 5, 7}
 
-// maxOwnHarmonic is the highest of ownHarmonics.
-var maxOwnHarmonic = slices.Max(ownHarmonics)
+// harmonicInflation is the most by which the signal's own harmonics,
+// fitted beside it, may inflate the variance of its phasor over the fit
+// without them (calibrate.ConditionedHarmonics) before signalHarmonics
+// leaves them out. Over ten cycles they cost a percent or two; over two
+// cycles or fewer the 2nd harmonic is nearly the fundamental's change
+// across the window, and --window 0.03 at 50 Hz (1.5 cycles) with the
+// 2nd, 3rd, 5th and 7th fitted read a walked 20 A cable ± 0.11 A with
+// window residuals of 88 nT, where the 3rd and 5th alone (an inflation of
+// 1.45) gave ± 0.0037 A and 2.9 nT, and nothing said so (found in review).
+const harmonicInflation = 1.5
 
 // signalHarmonics returns the harmonics of ownHarmonics fitted at freq
 // in windows of win seconds: those below 0.45 of the sample rate (a
-// harmonic at or above the Nyquist frequency cannot be fitted) and apart
-// from the mains lines fitted beside the signal (apart).
-func (pl demodPlan) signalHarmonics(freq, win float64) []int {
-	var out []int
+// harmonic at or above the Nyquist frequency cannot be fitted), apart
+// from the mains lines fitted beside the signal (apart), and, taken in
+// increasing order, each that with those kept before it inflates the
+// variance of the fundamental's phasor by at most harmonicInflation over
+// the fit without them. With a note saying which were left out and why
+// ("" when none was).
+func (pl demodPlan) signalHarmonics(freq, win float64) ([]int, string) {
+	var cand []int
 	for _, h := range pl.apart(freq, win, ownHarmonics) {
 		if float64(h)*freq < 0.45*pl.fs {
+			cand = append(cand, h)
+		}
+	}
+	if len(cand) == 0 {
+		return nil, ""
+	}
+	fit, err := calibrate.ConditionedHarmonics(pl.fs, pl.settings(freq, win, cand), harmonicInflation)
+	if err != nil || len(fit.Keep) == len(cand) {
+		// A basis singular without harmonics: the demodulation says why.
+		return cand, ""
+	}
+	var out []int
+	for _, h := range cand {
+		if !slices.Contains(fit.Keep, h) {
 			out = append(out, h)
 		}
 	}
-	return out
+	are, it, add := "is", "it", "adds"
+	if len(out) > 1 {
+		are, it, add = "are", "them", "add"
+	}
+	kept := "none is fitted"
+	if len(fit.Keep) == 1 {
+		kept = fmt.Sprintf("the %s is fitted (%.3g times)", harmonicsPhrase(fit.Keep), fit.Inflation)
+	} else if len(fit.Keep) > 1 {
+		kept = fmt.Sprintf("the %s are fitted (%.3g times)", harmonicsPhrase(fit.Keep), fit.Inflation)
+	}
+	longer := ""
+	if w := pl.harmonicsWindow(freq, win, cand); w > 0 {
+		longer = fmt.Sprintf("; windows of %.3g s or longer fit them all", w)
+	}
+	all := fmt.Sprintf("the variance of the signal's phasor would be %.3g times that without harmonics", fit.All)
+	if math.IsInf(fit.All, 0) || math.IsNaN(fit.All) {
+		all = "the fit's columns would be singular"
+	}
+	return fit.Keep, fmt.Sprintf("in %.4g s windows (%.2f cycles of %g Hz) the signal's %s %s not fitted: over so few cycles the fit can hardly tell %s from the signal's own change across the window, and with the %s fitted %s; %s. A distorted current's %s then %s to the signal's noise%s",
+		win, win*freq, freq, harmonicsPhrase(out), are, it, harmonicsPhrase(cand), all, kept, harmonicsPhrase(out), add, longer)
+}
+
+// harmonicsPhrase names the harmonics h: "2nd harmonic", "3rd and 5th
+// harmonics", "2nd, 3rd, 5th and 7th harmonics".
+func harmonicsPhrase(h []int) string {
+	names := make([]string, len(h))
+	for i, k := range h {
+		names[i] = strings.TrimSuffix(harmonicName(float64(k)), " harmonic")
+	}
+	switch len(names) {
+	case 0:
+		return "no harmonics"
+	case 1:
+		return names[0] + " harmonic"
+	}
+	return strings.Join(names[:len(names)-1], ", ") + " and " + names[len(names)-1] + " harmonics"
+}
+
+// harmonicsWindow is the shortest window, s, longer than win by whole
+// quarter cycles of freq (up to ten cycles more), in which every harmonic
+// of h is fitted (signalHarmonics' rule); 0 when none is.
+func (pl demodPlan) harmonicsWindow(freq, win float64, h []int) float64 {
+	for j := 1; j <= 40; j++ {
+		w := win + float64(j)*0.25/freq
+		fit, err := calibrate.ConditionedHarmonics(pl.fs, pl.settings(freq, w, h), harmonicInflation)
+		if err == nil && len(fit.Keep) == len(h) {
+			return w
+		}
+	}
+	return 0
 }
 
 // demodulate demodulates s at freq in windows of win seconds with the
 // signal's harmonics h fitted (settings), or, should that fail (a basis
-// too large for the window's samples), without them.
+// too large for the window's samples), without them, with a warning
+// saying so (before, nothing was said).
 func (pl demodPlan) demodulate(s *ingest.Samples, freq, win float64, h []int) (*calibrate.DemodResult, error) {
 	res, err := calibrate.Demodulate(s, pl.settings(freq, win, h))
 	if err != nil && len(h) > 0 {
 		if r2, err2 := calibrate.Demodulate(s, pl.settings(freq, win, nil)); err2 == nil {
+			r2.Warnings = append(r2.Warnings, fmt.Sprintf("the signal's %s could not be fitted in %.4g s windows and are not (%s): those of a distorted current add to the signal's noise",
+				harmonicsPhrase(h), win, strings.TrimPrefix(err.Error(), "calibrate: ")))
 			return r2, nil
 		}
 	}
@@ -412,24 +490,43 @@ const defaultInflation = 1.5
 // conditioned returns the default window win at freq, lengthened to the
 // shortest whole multiple of it in which the signal's phasor is well
 // conditioned at the log's sample rate (defaultInflation), with a warning
-// saying so ("" when win stays).
+// saying so ("" when win stays), where the window spans fewer than
+// nyquistCheckBeats beats 1/|fs - 2f|. The window counts as lengthened
+// only when it becomes a larger multiple: calibrate.ConditionedWindow
+// returns the window as the log's sampling rounds it, and a 0.1 s window
+// at 4999.2 Hz (a 5 kHz logger's rate read from its stamps), 0.100016 s,
+// had been warned about as "lengthened to 0.1 s" (found in review).
 func (pl demodPlan) conditioned(freq, win float64) (float64, string) {
-	if !(pl.fs > 0) || float64(maxOwnHarmonic)*freq < 0.45*pl.fs {
-		// Far from the Nyquist frequency: ten cycles are well spread.
+	beat := math.Abs(pl.fs - 2*freq)
+	if !(pl.fs > 0) || beat*win >= nyquistCheckBeats {
+		// Far from twice the frequency: the window spans several beats
+		// and is well spread (50 Hz in 0.2 s has an inflation of 1.07 at
+		// 115 Hz, 3 beats, and 1.03 at 120 Hz, 4; at 110 Hz, 2 beats,
+		// 1.87). Before, the check ran whenever the 7th harmonic reached
+		// 0.45 of the sample rate, and said "close to twice" at 512 Hz
+		// sampled at 5 kHz (found in review).
 		return win, ""
 	}
-	w, inf, err := calibrate.ConditionedWindow(pl.fs, pl.settings(freq, win, pl.signalHarmonics(freq, win)), defaultInflation)
-	if err != nil || !(w > win*(1+1e-9)) {
+	h, _ := pl.signalHarmonics(freq, win)
+	w, inf, err := calibrate.ConditionedWindow(pl.fs, pl.settings(freq, win, h), defaultInflation)
+	if err != nil || !longerMultiple(w, win) {
 		return win, ""
 	}
 	// The harmonics fitted may change with the window (they must lie apart
 	// from the mains lines fitted beside a tracer): check the window found
 	// with its own.
-	if w2, _, err := calibrate.ConditionedWindow(pl.fs, pl.settings(freq, w, pl.signalHarmonics(freq, w)), defaultInflation); err == nil && w2 > w {
-		w = w2
+	h, _ = pl.signalHarmonics(freq, w)
+	if w2, inf2, err := calibrate.ConditionedWindow(pl.fs, pl.settings(freq, w, h), defaultInflation); err == nil && longerMultiple(w2, w) {
+		w, inf = w2, inf2
 	}
 	return w, fmt.Sprintf("the %.5g Hz sampling is close to twice the %g Hz signal: in the default %.4g s windows the signal's sine and cosine, alternating in sign from sample to sample under an envelope that turns once every %.3g s, could hardly be told from their change across the window, so the windows are lengthened to %.4g s (the signal's variance %.2g times that of a well-spread window); give --window to choose another",
-		pl.fs, freq, win, 1/math.Abs(pl.fs-2*freq), w, inf)
+		pl.fs, freq, win, 1/beat, w, inf)
+}
+
+// longerMultiple reports whether the window w (as the sampling rounds it)
+// is a whole multiple of win of two or more, not win itself rounded.
+func longerMultiple(w, win float64) bool {
+	return w > 1.5*win
 }
 
 // nyquistCheckBeats is the number of beats 1/|fs - 2f| a window must span
@@ -616,7 +713,7 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 		win = defaultWindow(o.freq)
 		win, lengthened = pl.conditioned(o.freq, win)
 	}
-	harm := pl.signalHarmonics(o.freq, win)
+	harm, dropped := pl.signalHarmonics(o.freq, win)
 	res, err := pl.demodulate(s, o.freq, win, harm)
 	if err != nil {
 		var ill *calibrate.IllConditionedError
@@ -624,6 +721,9 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 			err = fmt.Errorf("%w (--window %g)", err, math.Ceil(ill.Suggest*1000-1e-6)/1000)
 		}
 		return nil, 0, nil, nil, err
+	}
+	if dropped != "" {
+		res.Warnings = append([]string{dropped}, res.Warnings...)
 	}
 	if lengthened != "" {
 		res.Warnings = append([]string{lengthened}, res.Warnings...)
@@ -705,9 +805,13 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 	if c := win * o.freq; math.Abs(c-math.Round(c)) < 1e-6*c {
 		win2 = math.Round(c) / est.freq
 	}
-	again, err := pl.demodulate(s, est.freq, win2, pl.signalHarmonics(est.freq, win2))
+	harm2, dropped2 := pl.signalHarmonics(est.freq, win2)
+	again, err := pl.demodulate(s, est.freq, win2, harm2)
 	if err != nil {
 		return nil, 0, nil, nil, err
+	}
+	if dropped2 != "" {
+		again.Warnings = append([]string{dropped2}, again.Warnings...)
 	}
 	if lengthened != "" {
 		again.Warnings = append([]string{lengthened}, again.Warnings...)

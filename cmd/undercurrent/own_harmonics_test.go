@@ -88,7 +88,7 @@ func TestSignalHarmonics(t *testing.T) {
 		{512, 0.3, 8000, []int{3, 5, 7}}, // 2/0.3 s = 6.7 Hz: only 1024 Hz too near
 	} {
 		pl := demodPlan{mains: []float64{50, 60}, fs: c.fs}
-		got := pl.signalHarmonics(c.freq, c.win)
+		got, _ := pl.signalHarmonics(c.freq, c.win)
 		if !slices.Equal(got, c.want) {
 			t.Errorf("signalHarmonics(%g Hz, %g s window, %g Hz sampling) = %v, want %v", c.freq, c.win, c.fs, got, c.want)
 		}
