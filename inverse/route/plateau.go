@@ -102,26 +102,7 @@ func clean(p *Placed, set *Settings) bool {
 // stations u[lo..hi] may set the levels (lo and hi are the neighbouring
 // steps' bracketing stations).
 func plateau(u []*Placed, set *Settings, ia, ib, lo, hi int) levels {
-	var idx []int
-	n := 0
-	for i := ia - 1; i >= lo && n < plateauStations+maxTransition; i-- {
-		if levelSound(u[i], set) {
-			idx = append(idx, i)
-			n++
-		}
-	}
-	for i := ia; i <= ib; i++ {
-		if i == ia || i == ib || levelSound(u[i], set) {
-			idx = append(idx, i)
-		}
-	}
-	n = 0
-	for i := ib + 1; i <= hi && n < plateauStations+maxTransition; i++ {
-		if levelSound(u[i], set) {
-			idx = append(idx, i)
-			n++
-		}
-	}
+	idx := levelStations(u, set, ia, ib, lo, hi)
 	xa, xb := u[ia].Chainage, u[ib].Chainage
 	pts := make([]lvPoint, 0, len(idx))
 	for _, i := range idx {
@@ -223,6 +204,35 @@ func plateau(u []*Placed, set *Settings, ia, ib, lo, hi int) levels {
 		lv.sharpStep, lv.sharpSigma = lv.step, lv.sigma
 	}
 	return lv
+}
+
+// levelStations returns the indices of the stations that may set the
+// levels of the step bracketed by u[ia] and u[ib], bounded by u[lo] and
+// u[hi]: the sound ones within plateauStations+maxTransition of the
+// bracket on each side, and the bracketing stations and the sound ones
+// between them.
+func levelStations(u []*Placed, set *Settings, ia, ib, lo, hi int) []int {
+	var idx []int
+	n := 0
+	for i := ia - 1; i >= lo && n < plateauStations+maxTransition; i-- {
+		if levelSound(u[i], set) {
+			idx = append(idx, i)
+			n++
+		}
+	}
+	for i := ia; i <= ib; i++ {
+		if i == ia || i == ib || levelSound(u[i], set) {
+			idx = append(idx, i)
+		}
+	}
+	n = 0
+	for i := ib + 1; i <= hi && n < plateauStations+maxTransition; i++ {
+		if levelSound(u[i], set) {
+			idx = append(idx, i)
+			n++
+		}
+	}
+	return idx
 }
 
 // z is the significance of the step: the larger of the size's and, when

@@ -85,3 +85,40 @@ func TestEndLossWithTrendSized(t *testing.T) {
 		}
 	}
 }
+
+// TestSecondLossKeptOnSimulatedRoutes: on each of twoLossRuns (stations
+// located from the review's simulated logs; truth 2 A at 31.5 m and 0.8 A
+// at 43.5 m or 0.6 A at 40.5 m) both losses must be reported, each as a
+// fall whose bracket holds it and not the other. The route once reported
+// only one step there (3.36 A at 34.0 ± 0.5 m on the first), dropping the
+// smaller loss as the tail of the larger's transition.
+func TestSecondLossKeptOnSimulatedRoutes(t *testing.T) {
+	for _, c := range twoLossRuns {
+		st := make([]Station, len(c.st))
+		for i, s := range c.st {
+			st[i] = Station{Key: key(i + 1), Point: [3]float64{s[0], 0, -1}, Dir: [3]float64{1, 0, 0},
+				Current: s[1], CurrentSigma: s[2], Depth: 1, DepthSigma: 0.003, OK: true}
+		}
+		r, err := Build(st, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		var big, small bool
+		for _, f := range lossSteps(r) {
+			step, _ := valueNamed(f, "step")
+			in := func(x float64) bool { return f.From <= x && x <= f.To }
+			if step.Value < 0 && in(31.5) && !in(c.second.x) {
+				big = true
+			}
+			if step.Value < 0 && in(c.second.x) && !in(31.5) {
+				small = true
+			}
+		}
+		if !big || !small {
+			for _, f := range lossSteps(r) {
+				t.Logf("%s: %s", c.name, f.Message)
+			}
+			t.Errorf("%s: loss at 31.5 m reported apart %v, loss at %.1f m %v; want both", c.name, big, c.second.x, small)
+		}
+	}
+}

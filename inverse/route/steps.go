@@ -362,7 +362,9 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64, bs 
 				continue
 			}
 			d := raw - (pl.current(b.Chainage) - pl.current(a.Chainage))
-			if math.Abs(d) <= set.stepK()*rawSigma {
+			// Unless run r's own stations show a level change beside
+			// the neighbour's transition (separateLevel).
+			if math.Abs(d) <= set.stepK()*rawSigma && !separateLevel(uo, set, runs[n], runs[r], lo, hi) {
 				return true
 			}
 		}
