@@ -122,3 +122,40 @@ func TestSecondLossKeptOnSimulatedRoutes(t *testing.T) {
 		}
 	}
 }
+
+// TestMergedLossesLocationSigma: a 2 A loss at 31.5 m and 0.4 A two
+// spacings on at 37.5 m (or before it at 25.5 m), 31 stations 3 m apart,
+// sigma 0.011 A (the review's simulated fits at 5 nT). The two are
+// reported as one step; its location must then lie within three of its
+// sigmas of the larger loss (simulated truth) on nearly every draw. The
+// location's sigma from a profile interval under a one-transition model
+// was 0.08-0.09 m there, the location 0.8 m (9 sigma) from the loss.
+func TestMergedLossesLocationSigma(t *testing.T) {
+	rng := rand.New(rand.NewPCG(23, 5))
+	for _, small := range []loss{{37.5, 0.4}, {25.5, 0.4}} {
+		const draws = 20
+		var n, in int
+		for range draws {
+			r, err := Build(lossStations(rng, 31, 3, 0.011, 0, []loss{{31.5, 2}, small}), nil)
+			if err != nil {
+				t.Fatal(err)
+			}
+			for _, f := range lossSteps(r) {
+				loc, ok := valueNamed(f, "location (chainage)")
+				if !ok || !(f.From <= 31.5 && 31.5 <= f.To && f.From <= small.x && small.x <= f.To) {
+					continue
+				}
+				n++
+				if z := (loc.Value - 31.5) / loc.Sigma; math.Abs(z) <= 3 {
+					in++
+				} else if n-in <= 2 {
+					t.Logf("%+v: z %.1f: %s", small, z, f.Message)
+				}
+			}
+		}
+		if n < draws/2 || in < n*9/10 {
+			t.Errorf("%.1f A at %.1f m beside 2 A at 31.5 m: one step on %d of %d draws, its location within 3 sigma of 31.5 m on %d, want half the draws and 90%%",
+				small.d, small.x, n, draws, in)
+		}
+	}
+}
