@@ -139,17 +139,19 @@
 //	I(x) = I_after + (I_before - I_after) (1 + (x_f - x)/sqrt((x_f - x)^2 + H^2))/2 + g (x - x_f)
 //
 // over the run's stations and up to eight sound ones beyond each end, with
-// x_f and H found by a grid search, the trend g always fitted when each
-// side has two stations (a trend kept only when significant biases the
-// step; with one station a side the slope would be the other side's
-// carried back to it; see plateau.go sharedSlope), a shared
+// x_f and H found by a grid search, the trend g always fitted with four
+// stations or more (a trend kept only when significant biases the step,
+// and so does leaving it out beside a one-station side; see plateau.go
+// sharedSlope), a shared
 // scatter tau^2 added to the stations' own variances (DerSimonian & Laird
 // 1986), and the sigma the half-width of the profile interval of
 // I_after - I_before, scaled by the Birge ratio when that exceeds one; a
 // gradual transition's x_f and H are then polished off the grid and their
 // uncertainty added by the delta method when that is wider. When the
 // transition's shape places x_f within the bracket the finding gives that
-// location with its sigma, the profile interval of x_f (profileRange). H stays within the grid's range (0.02 to 3
+// location with its sigma, the profile interval of x_f (profileRange), or
+// a station spacing's sqrt(12) share where the level model misfits its
+// stations (two losses sized as one; levels.misfits). H stays within the grid's range (0.02 to 3
 // station spacings), the step's sigma is never less than the levels'
 // covariance gives, and a fit in which the trend inflates the step's
 // variance more than maxInflation times (the levels and the slope nearly
