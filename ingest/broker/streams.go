@@ -5,6 +5,7 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"math/rand/v2"
 	"time"
 
 	"github.com/nats-io/nats.go"
@@ -103,14 +104,14 @@ func Setup(ctx context.Context, js jetstream.JetStream, set StreamSettings) (*St
 	st := &Stores{JS: js, LeaseTTL: set.LeaseTTL}
 	for _, cfg := range streams {
 		cfg.Storage = storage
-		cfg.Replicas = set.Replicas
+		cfg.Replicas = st.keepReplicas(ctx, cfg.Name, set.Replicas)
 		// The history and alarm queries position themselves by single-message
 		// lookups; with direct get any server holding the stream answers them
 		// without the stream leader's request path (28-40% faster queries on
 		// the loopback benchmarks). On one replica that server is the stream
 		// itself; with more, a lagging follower could answer, and a binary
 		// search over sequence numbers must not see a stale stream.
-		if set.Replicas == 1 && (cfg.Name == StreamEstimates || cfg.Name == StreamAlarms) {
+		if cfg.Replicas == 1 && (cfg.Name == StreamEstimates || cfg.Name == StreamAlarms) {
 			cfg.AllowDirect = true
 		}
 		var err error
@@ -140,8 +141,8 @@ func Setup(ctx context.Context, js jetstream.JetStream, set StreamSettings) (*St
 	}
 	for _, k := range kvs {
 		k.cfg.Storage = storage
-		k.cfg.Replicas = set.Replicas
-		kv, err := js.CreateOrUpdateKeyValue(ctx, k.cfg)
+		k.cfg.Replicas = st.keepReplicas(ctx, "KV_"+k.cfg.Bucket, set.Replicas)
+		kv, err := createOrUpdateKeyValue(ctx, js, k.cfg)
 		if err != nil {
 			return nil, fmt.Errorf("broker: bucket %s: %w", k.cfg.Bucket, err)
 		}
@@ -158,6 +159,46 @@ type Stores struct {
 	// DeadLetterMaxBytes is the dead-letter stream's bound as applied
 	// (0: none; see StreamSettings.DeadLetterMaxBytes).
 	DeadLetterMaxBytes int64
+	// KeptReplicas lists the streams and buckets that the broker already
+	// held with more replicas than StreamSettings.Replicas asked for:
+	// Setup never lowers a stream's replicas (a site file left at
+	// replicas = 1 would otherwise take a cluster's data down to one
+	// copy), it keeps the broker's count and says so here.
+	KeptReplicas []KeptReplicas
+}
+
+// KeptReplicas is a stream (or a bucket's stream, "KV_<bucket>") whose
+// replicas Setup kept above what it was asked for.
+type KeptReplicas struct {
+	Stream      string
+	Have, Asked int
+}
+
+func (k KeptReplicas) String() string {
+	return fmt.Sprintf("stream %s has %d replicas on the broker, the site file asks for %d: kept at %d (serve never lowers replicas; set [broker] replicas = %d in every site file on this cluster, or lower the stream's replicas on the broker itself)",
+		k.Stream, k.Have, k.Asked, k.Have, k.Have)
+}
+
+// keepReplicas returns the replicas to give stream: asked, or the
+// stream's present count when that is higher (noted in KeptReplicas).
+func (st *Stores) keepReplicas(ctx context.Context, stream string, asked int) int {
+	have := 0
+	for attempt := 0; attempt < 3 && ctx.Err() == nil; attempt++ {
+		actx, cancel := context.WithTimeout(ctx, attemptTimeout)
+		s, err := st.JS.Stream(actx, stream)
+		if err == nil {
+			have = s.CachedInfo().Config.Replicas
+		}
+		cancel()
+		if err == nil || !noAnswer(err) {
+			break
+		}
+	}
+	if have > asked {
+		st.KeptReplicas = append(st.KeptReplicas, KeptReplicas{Stream: stream, Have: have, Asked: asked})
+		return have
+	}
+	return asked
 }
 
 // BoundError is Setup's error for a stream whose byte bound the store
@@ -207,19 +248,73 @@ func defaultDeadLetterBound(ctx context.Context, js jetstream.JetStream, cfg *je
 // name made meanwhile.
 const errCodeStreamNameInUse = 10058
 
-// createOrUpdateStream is js.CreateOrUpdateStream, tried again when
-// another process created the stream with another configuration between
-// the client's lookup and its create (serve processes starting together:
-// the dead-letter bound is found by trying bounds, so their
-// configurations differ for a moment); the next try updates it.
+// attemptTimeout bounds one create, update or lookup of a stream; a
+// clustered create that gets no answer in that time is looked up and
+// tried again (see retrying).
+const attemptTimeout = 4 * time.Second
+
+// createOrUpdateStream is js.CreateOrUpdateStream, tried again (see
+// retrying) when another process created the stream with another
+// configuration between the client's lookup and its create (serve
+// processes starting together: the dead-letter bound is found by trying
+// bounds, so their configurations differ for a moment), or when the
+// request got no answer (two creates of a new stream on a cluster: one
+// can go unanswered while the cluster places the other); the next try
+// looks the stream up and updates it.
 func createOrUpdateStream(ctx context.Context, js jetstream.JetStream, cfg jetstream.StreamConfig) error {
-	for attempt := 0; ; attempt++ {
-		_, err := js.CreateOrUpdateStream(ctx, cfg)
+	return retrying(ctx, func(actx context.Context) error {
+		_, err := js.CreateOrUpdateStream(actx, cfg)
+		return err
+	})
+}
+
+// createOrUpdateKeyValue is js.CreateOrUpdateKeyValue, tried again as
+// createOrUpdateStream is.
+func createOrUpdateKeyValue(ctx context.Context, js jetstream.JetStream, cfg jetstream.KeyValueConfig) (jetstream.KeyValue, error) {
+	var kv jetstream.KeyValue
+	err := retrying(ctx, func(actx context.Context) error {
+		var err error
+		kv, err = js.CreateOrUpdateKeyValue(actx, cfg)
+		return err
+	})
+	return kv, err
+}
+
+// retrying runs op, each time with attemptTimeout, until it succeeds,
+// fails otherwise than by a name in use or a request without an answer,
+// or ctx ends (then the last error is returned, saying which it was). It
+// waits between tries, doubling from 100 ms up to 2 s with jitter, so
+// that processes starting together do not ask in step.
+func retrying(ctx context.Context, op func(context.Context) error) error {
+	wait := 100 * time.Millisecond
+	for attempt := 1; ; attempt++ {
+		actx, cancel := context.WithTimeout(ctx, attemptTimeout)
+		err := op(actx)
+		cancel()
+		if err == nil {
+			return nil
+		}
 		var je jetstream.JetStreamError
-		if err == nil || attempt == 4 || !errors.As(err, &je) || je.APIError() == nil || je.APIError().ErrorCode != errCodeStreamNameInUse {
+		inUse := errors.As(err, &je) && je.APIError() != nil && je.APIError().ErrorCode == errCodeStreamNameInUse
+		if !inUse && !noAnswer(err) {
 			return err
 		}
+		select {
+		case <-ctx.Done():
+			if noAnswer(err) {
+				return fmt.Errorf("no answer from the broker's JetStream in %d tries (is the cluster's JetStream up, with a leader?): %w", attempt, err)
+			}
+			return err
+		case <-time.After(wait/2 + time.Duration(rand.Int64N(int64(wait)))):
+		}
+		wait = min(2*wait, 2*time.Second)
 	}
+}
+
+// noAnswer reports whether err is a JetStream request that got no answer
+// (timed out, or had no responder yet).
+func noAnswer(err error) bool {
+	return errors.Is(err, context.DeadlineExceeded) || errors.Is(err, nats.ErrTimeout) || errors.Is(err, nats.ErrNoResponders)
 }
 
 // insufficientStorage reports whether err is the broker refusing a

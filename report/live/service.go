@@ -204,6 +204,12 @@ func (s *Service) Run(ctx context.Context) error {
 	if err != nil {
 		return fmt.Errorf("live: %w%s", err, s.site.boundAdvice(err))
 	}
+	for _, k := range s.stores.KeptReplicas {
+		s.log.Warn("replicas not lowered: "+k.String(), "stream", k.Stream, "broker_replicas", k.Have, "site_replicas", k.Asked)
+	}
+	if cl := s.nc.ConnectedClusterName(); cl != "" && s.site.Broker.Replicas == 1 && len(s.stores.KeptReplicas) == 0 {
+		s.log.Warn("the broker is a cluster but [broker] replicas = 1: each stream and bucket is kept on one node only, so losing that node loses or stalls its data; set replicas = 3 (the same in every site file on the cluster)", "cluster", cl)
+	}
 	if n := s.stores.DeadLetterMaxBytes; n > 0 {
 		s.log.Info("dead letters kept up to a bound, the oldest giving way", "stream", broker.StreamDeadLetter, "max_bytes", n, "max_age", broker.DeadLetterMaxAge)
 	} else {
