@@ -4,6 +4,7 @@ import (
 	"context"
 	"crypto/rand"
 	"encoding/hex"
+	"encoding/json"
 	"errors"
 	"fmt"
 	"hash/fnv"
@@ -68,11 +69,14 @@ type Service struct {
 	// site file that says more (a commissioning needsSiteError), why.
 	stopped sync.Map
 
-	mu       sync.Mutex
-	held     map[string]*holding
-	ready    chan struct{}
-	httpLn   net.Listener
-	readyErr error
+	mu   sync.Mutex
+	held map[string]*holding
+	// leftElsewhere: assets this site file does not list whose data the
+	// unknown-asset sweep leaves to another worker (logged once).
+	leftElsewhere map[string]bool
+	ready         chan struct{}
+	httpLn        net.Listener
+	readyErr      error
 
 	// queryHook, when set (tests), is called by queries as their
 	// consumer is created, reset and fetched from (see querycons.go).
@@ -120,7 +124,7 @@ func New(cfg Config) (*Service, error) {
 	}
 	s := &Service{site: cfg.Site, nc: cfg.Conn, id: cfg.Worker, log: cfg.Logger, met: newMetrics(),
 		newEstimator: cfg.NewEstimator, commissioner: cfg.Commissioner, onEstimate: cfg.OnEstimate,
-		httpAddr: cfg.HTTP, memory: cfg.Memory, held: map[string]*holding{}, ready: make(chan struct{})}
+		httpAddr: cfg.HTTP, memory: cfg.Memory, held: map[string]*holding{}, leftElsewhere: map[string]bool{}, ready: make(chan struct{})}
 	if s.id == "" {
 		host, _ := os.Hostname()
 		var b [3]byte
@@ -276,11 +280,29 @@ func (s *Service) assetOrder() []string {
 	return append(names[k:], names[:k]...)
 }
 
+// workerBeat is a worker's entry in the workers bucket: when it last
+// beat and the assets its site file lists, so that a worker whose site
+// file lacks an asset that another's lists (a new asset being rolled
+// out) leaves that asset's data to it instead of dead-lettering it.
+type workerBeat struct {
+	At     string   `json:"at"`
+	Assets []string `json:"assets"`
+}
+
+func (s *Service) heartbeat(now time.Time) []byte {
+	b := workerBeat{At: now.UTC().Format(time.RFC3339Nano)}
+	for _, a := range s.site.Assets {
+		b.Assets = append(b.Assets, a.Name)
+	}
+	data, _ := json.Marshal(b)
+	return data
+}
+
 func (s *Service) leaseRound(ctx context.Context, order []string) {
 	st := s.stores
 	rctx, cancel := context.WithTimeout(context.Background(), s.site.Service.LeaseTTL.Duration/2) // not ctx: a stop must not look like a lost lease
 	defer cancel()
-	_, err := st.Workers.Put(rctx, s.id, []byte(time.Now().UTC().Format(time.RFC3339Nano)))
+	_, err := st.Workers.Put(rctx, s.id, s.heartbeat(time.Now()))
 	if err != nil {
 		s.log.Warn("heartbeat failed", "err", err)
 	}
