@@ -3,9 +3,14 @@ package broker
 import (
 	"cmp"
 	"context"
+	"crypto/x509"
 	"errors"
 	"fmt"
+	"io"
 	"math/rand/v2"
+	"net"
+	"os"
+	"strings"
 	"time"
 
 	"github.com/nats-io/nats.go"
@@ -328,16 +333,43 @@ func insufficientStorage(err error) bool {
 	return c == errCodeInsufficientStorage || c == errCodeInsufficientMemory
 }
 
-// Auth holds client credentials; the zero value connects without any.
+// Auth holds client credentials and TLS settings; the zero value
+// connects without any.
 type Auth struct {
 	User, Password string
 	Token          string
+	// UserFrom says where User came from (such as "--user" or "the site
+	// file's [broker] user"), for messages.
+	UserFrom string
+	// CAFile is a PEM file of the certificate authorities to trust for
+	// the broker's certificate (besides the system's); CertFile and
+	// KeyFile are the client's certificate and key, for a broker that
+	// asks for one (both or neither); CredsFile is a NATS credentials
+	// file (user JWT and seed), for a broker that authenticates that way.
+	CAFile, CertFile, KeyFile string
+	CredsFile                 string
 }
 
-// Connect dials url (a comma-separated list of nats:// URLs for a cluster)
-// with the credentials in auth. The connection retries and reconnects for
-// ever, so a broker restart does not end the client.
+// Connect dials url (a comma-separated list of nats:// or tls:// URLs for
+// a cluster) with the credentials in auth. The connection retries and
+// reconnects for ever, so a broker restart does not end the client. A
+// failure to connect says what was tried and, where the cause is a common
+// one, what to check.
 func Connect(url, name string, auth Auth) (*nats.Conn, error) {
+	if err := checkURLs(url); err != nil {
+		return nil, err
+	}
+	if (auth.CertFile == "") != (auth.KeyFile == "") {
+		return nil, fmt.Errorf("broker: a client certificate needs both its certificate file and its key file (got %q and %q)", auth.CertFile, auth.KeyFile)
+	}
+	for _, f := range []string{auth.CAFile, auth.CertFile, auth.KeyFile, auth.CredsFile} {
+		if f == "" {
+			continue
+		}
+		if _, err := os.Stat(f); err != nil {
+			return nil, fmt.Errorf("broker: %w", err)
+		}
+	}
 	opts := []nats.Option{
 		nats.Name(name),
 		nats.MaxReconnects(-1),
@@ -351,9 +383,72 @@ func Connect(url, name string, auth Auth) (*nats.Conn, error) {
 	if auth.Token != "" {
 		opts = append(opts, nats.Token(auth.Token))
 	}
+	if auth.CAFile != "" {
+		opts = append(opts, nats.RootCAs(auth.CAFile))
+	}
+	if auth.CertFile != "" {
+		opts = append(opts, nats.ClientCert(auth.CertFile, auth.KeyFile))
+	}
+	if auth.CredsFile != "" {
+		opts = append(opts, nats.UserCredentials(auth.CredsFile))
+	}
 	nc, err := nats.Connect(url, opts...)
 	if err != nil {
-		return nil, fmt.Errorf("broker: connect %s: %w", url, err)
+		return nil, fmt.Errorf("broker: connect %s: %w%s", url, err, connectHint(err, auth))
 	}
 	return nc, nil
+}
+
+// checkURLs refuses a broker URL list with a scheme a NATS client port
+// does not speak (an http:// URL is the monitoring port's).
+func checkURLs(list string) error {
+	for _, u := range strings.Split(list, ",") {
+		u = strings.TrimSpace(u)
+		scheme, _, ok := strings.Cut(u, "://")
+		if !ok {
+			continue // host:port
+		}
+		switch strings.ToLower(scheme) {
+		case "nats", "tls", "ws", "wss":
+		case "http", "https":
+			return fmt.Errorf("broker: %s: want the broker's NATS client port as nats://HOST:PORT (tls:// for TLS; 4222 by default); an %s:// URL is its monitoring port's", u, strings.ToLower(scheme))
+		default:
+			return fmt.Errorf("broker: %s: scheme %q: want nats://HOST:PORT (or tls://, ws://, wss://)", u, scheme)
+		}
+	}
+	return nil
+}
+
+// connectHint is what to check after a failed connect, given its error.
+func connectHint(err error, auth Auth) string {
+	var nerr net.Error
+	var uerr x509.UnknownAuthorityError
+	var herr x509.HostnameError
+	switch {
+	case errors.Is(err, nats.ErrAuthorization) || strings.Contains(strings.ToLower(err.Error()), "authorization violation") ||
+		errors.Is(err, nats.ErrAuthExpired) || errors.Is(err, nats.ErrAuthRevoked):
+		who := "with no user"
+		switch {
+		case auth.CredsFile != "":
+			who = "with the credentials file " + auth.CredsFile
+		case auth.User != "":
+			who = fmt.Sprintf("as user %q", auth.User)
+			if auth.UserFrom != "" {
+				who += " (from " + auth.UserFrom + ")"
+			}
+		case auth.Token != "":
+			who = "with a token"
+		}
+		return fmt.Sprintf(" (refused %s: check the user and password, token or credentials the broker expects)", who)
+	case errors.As(err, &uerr) || strings.Contains(err.Error(), "certificate signed by unknown authority"):
+		return " (the broker's certificate is signed by an authority this host does not trust: give its CA file as [broker] tls_ca or --tls-ca)"
+	case errors.As(err, &herr):
+		return " (the broker's certificate does not name the host in the URL)"
+	case errors.Is(err, nats.ErrSecureConnRequired):
+		return " (the broker requires TLS: use tls:// URLs, and [broker] tls_ca when its certificate is from a private authority)"
+	case errors.Is(err, io.EOF) || errors.Is(err, io.ErrUnexpectedEOF) || errors.Is(err, nats.ErrBadHeaderMsg) ||
+		(errors.As(err, &nerr) && nerr.Timeout()):
+		return " (no NATS greeting: is this the broker's NATS client port, 4222 by default, and not its MQTT, monitoring (HTTP), WebSocket or cluster route port?)"
+	}
+	return ""
 }

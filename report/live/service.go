@@ -199,6 +199,20 @@ func (s *Service) Run(ctx context.Context) error {
 	if err != nil {
 		return fmt.Errorf("live: %w", err)
 	}
+	// Listen first, so that an address in use stops serve before it
+	// touches the broker's streams; requests are served once they exist.
+	if s.httpAddr != "-" {
+		ln, err := net.Listen("tcp", s.httpAddr)
+		if err != nil {
+			return fmt.Errorf("live: http: %w", err)
+		}
+		s.httpLn = ln
+		defer func() {
+			if s.stores == nil {
+				ln.Close()
+			}
+		}()
+	}
 	sctx, cancel := context.WithTimeout(ctx, 30*time.Second)
 	s.stores, err = broker.Setup(sctx, js, broker.StreamSettings{
 		Replicas: s.site.Broker.Replicas, DataMaxAge: s.site.Broker.DataRetention.Duration, DataMaxBytes: s.site.Broker.DataMaxBytes,
@@ -221,12 +235,7 @@ func (s *Service) Run(ctx context.Context) error {
 		s.log.Warn(msg, attrs...)
 	}
 	var srv *http.Server
-	if s.httpAddr != "-" {
-		ln, err := net.Listen("tcp", s.httpAddr)
-		if err != nil {
-			return fmt.Errorf("live: http: %w", err)
-		}
-		s.httpLn = ln
+	if ln := s.httpLn; ln != nil {
 		srv = &http.Server{Handler: s.Handler(), ReadHeaderTimeout: 10 * time.Second}
 		go srv.Serve(ln)
 		s.log.Info("http api listening", "addr", ln.Addr().String())
