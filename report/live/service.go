@@ -222,8 +222,12 @@ func (s *Service) Run(ctx context.Context) error {
 	if err != nil {
 		return fmt.Errorf("live: %w%s", err, s.site.boundAdvice(err))
 	}
-	for _, k := range s.stores.KeptReplicas {
-		s.log.Warn("replicas not lowered: "+k.String(), "stream", k.Stream, "broker_replicas", k.Have, "site_replicas", k.Asked)
+	if kept := s.stores.KeptReplicas; len(kept) > 0 {
+		names := make([]string, len(kept))
+		for i, k := range kept {
+			names[i] = fmt.Sprintf("%s (%d)", k.Stream, k.Have)
+		}
+		s.log.Warn("replicas not lowered: "+kept[0].String(), "site_replicas", kept[0].Asked, "kept", strings.Join(names, ", "))
 	}
 	if cl := s.nc.ConnectedClusterName(); cl != "" && s.site.Broker.Replicas == 1 && len(s.stores.KeptReplicas) == 0 {
 		s.log.Warn("the broker is a cluster but [broker] replicas = 1: each stream and bucket is kept on one node only, so losing that node loses or stalls its data; set replicas = 3 (the same in every site file on the cluster)", "cluster", cl)
