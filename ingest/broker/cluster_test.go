@@ -50,13 +50,14 @@ func startCluster(t *testing.T, base int) string {
 	})
 	deadline := time.Now().Add(30 * time.Second)
 	for _, ns := range servers {
-		for !ns.ReadyForConnections(100*time.Millisecond) || !ns.JetStreamIsClustered() || ns.JetStreamIsCurrent() == false {
+		for !ns.ReadyForConnections(100*time.Millisecond) || !ns.JetStreamIsClustered() || !ns.JetStreamIsCurrent() {
 			if time.Now().After(deadline) {
 				t.Fatal("cluster not formed in 30 s")
 			}
+			time.Sleep(50 * time.Millisecond)
 		}
 	}
-	for servers[0].JetStreamIsLeader() == false && servers[1].JetStreamIsLeader() == false && servers[2].JetStreamIsLeader() == false {
+	for !servers[0].JetStreamIsLeader() && !servers[1].JetStreamIsLeader() && !servers[2].JetStreamIsLeader() {
 		if time.Now().After(deadline) {
 			t.Fatal("no JetStream meta leader in 30 s")
 		}
