@@ -30,8 +30,10 @@ type replayOptions struct {
 	user     string
 	password string
 	token    string
-	wait     time.Duration
-	read     readFlags
+	// TLS and credentials for the broker.
+	tlsCA, tlsCert, tlsKey, creds string
+	wait                          time.Duration
+	read                          readFlags
 }
 
 func init() {
@@ -87,6 +89,10 @@ README.md):
 			fs.StringVar(&o.user, "user", "", "broker user")
 			fs.StringVar(&o.password, "password", "", "broker password")
 			fs.StringVar(&o.token, "token", "", "broker token")
+			fs.StringVar(&o.tlsCA, "tls-ca", "", "PEM `FILE` of the authorities to trust for the broker's certificate")
+			fs.StringVar(&o.tlsCert, "tls-cert", "", "client certificate PEM `FILE` for the broker")
+			fs.StringVar(&o.tlsKey, "tls-key", "", "client key PEM `FILE` for the broker")
+			fs.StringVar(&o.creds, "credentials", "", "NATS credentials `FILE` for the broker")
 			fs.DurationVar(&o.wait, "wait", 10*time.Second, "wait up to `DURATION` for the broker's data stream (created by serve)")
 			o.read.add(fs)
 			o.read.addMissing(fs)
@@ -147,7 +153,8 @@ func runReplay(ctx context.Context, o *replayOptions, fs *pflag.FlagSet, args []
 	if t0 := batches[0].Time[0] + set.Shift; t0 < minReplayTime {
 		return fmt.Errorf("%s: the first time, %.3f s, is before 2000-01-01 (Unix seconds): the pipeline refuses such times; make the log start now with --now, or add seconds with --shift", args[0], t0)
 	}
-	nc, err := broker.Connect(o.broker, "undercurrent replay", broker.Auth{User: o.user, Password: o.password, Token: o.token})
+	nc, err := broker.Connect(o.broker, "undercurrent replay", broker.Auth{User: o.user, Password: o.password, Token: o.token, UserFrom: "--user",
+		CAFile: o.tlsCA, CertFile: o.tlsCert, KeyFile: o.tlsKey, CredsFile: o.creds})
 	if err != nil {
 		return err
 	}

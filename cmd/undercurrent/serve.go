@@ -1,6 +1,7 @@
 package main
 
 import (
+	"cmp"
 	"context"
 	"fmt"
 	"io"
@@ -26,6 +27,9 @@ type serveOptions struct {
 	password string
 	token    string
 	logLevel string
+	// TLS and credentials for --broker; the site file's [broker] keys
+	// when empty.
+	tlsCA, tlsCert, tlsKey, creds string
 }
 
 func init() {
@@ -76,6 +80,10 @@ Examples:
 			fs.StringVar(&o.user, "user", "", "broker user (default from the site file)")
 			fs.StringVar(&o.password, "password", "", "broker password (default from the site file, or $UNDERCURRENT_BROKER_PASSWORD)")
 			fs.StringVar(&o.token, "token", "", "broker token (default from the site file)")
+			fs.StringVar(&o.tlsCA, "tls-ca", "", "PEM `FILE` of the authorities to trust for the broker's certificate (default [broker] tls_ca)")
+			fs.StringVar(&o.tlsCert, "tls-cert", "", "client certificate PEM `FILE` for the broker (default [broker] tls_cert)")
+			fs.StringVar(&o.tlsKey, "tls-key", "", "client key PEM `FILE` for the broker (default [broker] tls_key)")
+			fs.StringVar(&o.creds, "credentials", "", "NATS credentials `FILE` for the broker (default [broker] credentials)")
 			fs.StringVar(&o.logLevel, "log-level", "info", "log `LEVEL`: debug, info, warn or error")
 		},
 		run: func(ctx context.Context, fs *pflag.FlagSet, args []string, stdout, stderr io.Writer) error {
@@ -100,9 +108,14 @@ func runServe(ctx context.Context, o *serveOptions, args []string, stderr io.Wri
 	if err != nil {
 		return err
 	}
-	auth := broker.Auth{User: site.Broker.User, Password: site.Broker.Password, Token: site.Broker.Token}
+	if err := checkHTTPAddr(cmp.Or(o.http, site.Service.HTTP)); err != nil {
+		return err
+	}
+	auth := broker.Auth{User: site.Broker.User, Password: site.Broker.Password, Token: site.Broker.Token, UserFrom: site.Path + " [broker] user",
+		CAFile: cmp.Or(o.tlsCA, site.Broker.TLSCA), CertFile: cmp.Or(o.tlsCert, site.Broker.TLSCert), KeyFile: cmp.Or(o.tlsKey, site.Broker.TLSKey),
+		CredsFile: cmp.Or(o.creds, site.Broker.Credentials)}
 	if o.user != "" {
-		auth.User = o.user
+		auth.User, auth.UserFrom = o.user, "--user"
 	}
 	if o.password != "" {
 		auth.Password = o.password
@@ -114,6 +127,9 @@ func runServe(ctx context.Context, o *serveOptions, args []string, stderr io.Wri
 	}
 	url := o.broker
 	if url == "" {
+		if err := site.CheckEmbeddedBroker(); err != nil {
+			return err
+		}
 		cfg, err := embeddedConfig(site, o.data)
 		if err != nil {
 			return err
@@ -197,6 +213,18 @@ func embeddedConfig(site *live.Site, dir string) (broker.ServerConfig, error) {
 		cfg.Users = append(cfg.Users, broker.User{Name: u.Name, Password: u.Password, Publish: u.Publish, Subscribe: u.Subscribe})
 	}
 	return cfg, nil
+}
+
+// checkHTTPAddr refuses an HTTP API address that cannot be listened on
+// ("-" is none), before serve touches the broker.
+func checkHTTPAddr(addr string) error {
+	if addr == "-" {
+		return nil
+	}
+	if _, err := net.ResolveTCPAddr("tcp", addr); err != nil {
+		return usageErrorf("--http / [service] http %q: want host:port (\"-\" for no HTTP API): %v", addr, err)
+	}
+	return nil
 }
 
 func splitAddr(addr, key string) (string, int, error) {

@@ -3,8 +3,14 @@ package broker
 import (
 	"cmp"
 	"context"
+	"crypto/x509"
 	"errors"
 	"fmt"
+	"io"
+	"math/rand/v2"
+	"net"
+	"os"
+	"strings"
 	"time"
 
 	"github.com/nats-io/nats.go"
@@ -103,14 +109,14 @@ func Setup(ctx context.Context, js jetstream.JetStream, set StreamSettings) (*St
 	st := &Stores{JS: js, LeaseTTL: set.LeaseTTL}
 	for _, cfg := range streams {
 		cfg.Storage = storage
-		cfg.Replicas = set.Replicas
+		cfg.Replicas = st.keepReplicas(ctx, cfg.Name, set.Replicas)
 		// The history and alarm queries position themselves by single-message
 		// lookups; with direct get any server holding the stream answers them
 		// without the stream leader's request path (28-40% faster queries on
 		// the loopback benchmarks). On one replica that server is the stream
 		// itself; with more, a lagging follower could answer, and a binary
 		// search over sequence numbers must not see a stale stream.
-		if set.Replicas == 1 && (cfg.Name == StreamEstimates || cfg.Name == StreamAlarms) {
+		if cfg.Replicas == 1 && (cfg.Name == StreamEstimates || cfg.Name == StreamAlarms) {
 			cfg.AllowDirect = true
 		}
 		var err error
@@ -140,8 +146,8 @@ func Setup(ctx context.Context, js jetstream.JetStream, set StreamSettings) (*St
 	}
 	for _, k := range kvs {
 		k.cfg.Storage = storage
-		k.cfg.Replicas = set.Replicas
-		kv, err := js.CreateOrUpdateKeyValue(ctx, k.cfg)
+		k.cfg.Replicas = st.keepReplicas(ctx, "KV_"+k.cfg.Bucket, set.Replicas)
+		kv, err := createOrUpdateKeyValue(ctx, js, k.cfg)
 		if err != nil {
 			return nil, fmt.Errorf("broker: bucket %s: %w", k.cfg.Bucket, err)
 		}
@@ -158,6 +164,46 @@ type Stores struct {
 	// DeadLetterMaxBytes is the dead-letter stream's bound as applied
 	// (0: none; see StreamSettings.DeadLetterMaxBytes).
 	DeadLetterMaxBytes int64
+	// KeptReplicas lists the streams and buckets that the broker already
+	// held with more replicas than StreamSettings.Replicas asked for:
+	// Setup never lowers a stream's replicas (a site file left at
+	// replicas = 1 would otherwise take a cluster's data down to one
+	// copy), it keeps the broker's count and says so here.
+	KeptReplicas []KeptReplicas
+}
+
+// KeptReplicas is a stream (or a bucket's stream, "KV_<bucket>") whose
+// replicas Setup kept above what it was asked for.
+type KeptReplicas struct {
+	Stream      string
+	Have, Asked int
+}
+
+func (k KeptReplicas) String() string {
+	return fmt.Sprintf("stream %s has %d replicas on the broker, the site file asks for %d: kept at %d (serve never lowers replicas; set [broker] replicas = %d in every site file on this cluster, or lower the stream's replicas on the broker itself)",
+		k.Stream, k.Have, k.Asked, k.Have, k.Have)
+}
+
+// keepReplicas returns the replicas to give stream: asked, or the
+// stream's present count when that is higher (noted in KeptReplicas).
+func (st *Stores) keepReplicas(ctx context.Context, stream string, asked int) int {
+	have := 0
+	for attempt := 0; attempt < 3 && ctx.Err() == nil; attempt++ {
+		actx, cancel := context.WithTimeout(ctx, attemptTimeout)
+		s, err := st.JS.Stream(actx, stream)
+		if err == nil {
+			have = s.CachedInfo().Config.Replicas
+		}
+		cancel()
+		if err == nil || !noAnswer(err) {
+			break
+		}
+	}
+	if have > asked {
+		st.KeptReplicas = append(st.KeptReplicas, KeptReplicas{Stream: stream, Have: have, Asked: asked})
+		return have
+	}
+	return asked
 }
 
 // BoundError is Setup's error for a stream whose byte bound the store
@@ -207,19 +253,80 @@ func defaultDeadLetterBound(ctx context.Context, js jetstream.JetStream, cfg *je
 // name made meanwhile.
 const errCodeStreamNameInUse = 10058
 
-// createOrUpdateStream is js.CreateOrUpdateStream, tried again when
-// another process created the stream with another configuration between
-// the client's lookup and its create (serve processes starting together:
-// the dead-letter bound is found by trying bounds, so their
-// configurations differ for a moment); the next try updates it.
+// attemptTimeout bounds one lookup of a stream, and firstAttempt one
+// create or update, doubled on each try up to attemptTimeout: a clustered
+// create that gets no answer in that time is looked up and tried again
+// (see retrying). Two processes creating a stream at once on a
+// three-node nats-server 2.15.2 cluster both went unanswered, for every
+// stream; the stream existed a moment later.
+const (
+	attemptTimeout = 4 * time.Second
+	firstAttempt   = time.Second
+)
+
+// createOrUpdateStream is js.CreateOrUpdateStream, tried again (see
+// retrying) when another process created the stream with another
+// configuration between the client's lookup and its create (serve
+// processes starting together: the dead-letter bound is found by trying
+// bounds, so their configurations differ for a moment), or when the
+// request got no answer (two creates of a new stream on a cluster: one
+// can go unanswered while the cluster places the other); the next try
+// looks the stream up and updates it.
 func createOrUpdateStream(ctx context.Context, js jetstream.JetStream, cfg jetstream.StreamConfig) error {
-	for attempt := 0; ; attempt++ {
-		_, err := js.CreateOrUpdateStream(ctx, cfg)
+	return retrying(ctx, func(actx context.Context) error {
+		_, err := js.CreateOrUpdateStream(actx, cfg)
+		return err
+	})
+}
+
+// createOrUpdateKeyValue is js.CreateOrUpdateKeyValue, tried again as
+// createOrUpdateStream is.
+func createOrUpdateKeyValue(ctx context.Context, js jetstream.JetStream, cfg jetstream.KeyValueConfig) (jetstream.KeyValue, error) {
+	var kv jetstream.KeyValue
+	err := retrying(ctx, func(actx context.Context) error {
+		var err error
+		kv, err = js.CreateOrUpdateKeyValue(actx, cfg)
+		return err
+	})
+	return kv, err
+}
+
+// retrying runs op, with firstAttempt doubling up to attemptTimeout,
+// until it succeeds, fails otherwise than by a name in use or a request
+// without an answer, or ctx ends (then the last error is returned, saying
+// which it was). It waits between tries, doubling from 100 ms up to 2 s
+// with jitter, so that processes starting together do not ask in step.
+func retrying(ctx context.Context, op func(context.Context) error) error {
+	wait, limit := 100*time.Millisecond, firstAttempt
+	for attempt := 1; ; attempt++ {
+		actx, cancel := context.WithTimeout(ctx, limit)
+		limit = min(2*limit, attemptTimeout)
+		err := op(actx)
+		cancel()
+		if err == nil {
+			return nil
+		}
 		var je jetstream.JetStreamError
-		if err == nil || attempt == 4 || !errors.As(err, &je) || je.APIError() == nil || je.APIError().ErrorCode != errCodeStreamNameInUse {
+		inUse := errors.As(err, &je) && je.APIError() != nil && je.APIError().ErrorCode == errCodeStreamNameInUse
+		if !inUse && !noAnswer(err) {
 			return err
 		}
+		select {
+		case <-ctx.Done():
+			if noAnswer(err) {
+				return fmt.Errorf("no answer from the broker's JetStream in %d tries (is the cluster's JetStream up, with a leader?): %w", attempt, err)
+			}
+			return err
+		case <-time.After(wait/2 + time.Duration(rand.Int64N(int64(wait)))):
+		}
+		wait = min(2*wait, 2*time.Second)
 	}
+}
+
+// noAnswer reports whether err is a JetStream request that got no answer
+// (timed out, or had no responder yet).
+func noAnswer(err error) bool {
+	return errors.Is(err, context.DeadlineExceeded) || errors.Is(err, nats.ErrTimeout) || errors.Is(err, nats.ErrNoResponders)
 }
 
 // insufficientStorage reports whether err is the broker refusing a
@@ -233,16 +340,43 @@ func insufficientStorage(err error) bool {
 	return c == errCodeInsufficientStorage || c == errCodeInsufficientMemory
 }
 
-// Auth holds client credentials; the zero value connects without any.
+// Auth holds client credentials and TLS settings; the zero value
+// connects without any.
 type Auth struct {
 	User, Password string
 	Token          string
+	// UserFrom says where User came from (such as "--user" or "the site
+	// file's [broker] user"), for messages.
+	UserFrom string
+	// CAFile is a PEM file of the certificate authorities to trust for
+	// the broker's certificate (besides the system's); CertFile and
+	// KeyFile are the client's certificate and key, for a broker that
+	// asks for one (both or neither); CredsFile is a NATS credentials
+	// file (user JWT and seed), for a broker that authenticates that way.
+	CAFile, CertFile, KeyFile string
+	CredsFile                 string
 }
 
-// Connect dials url (a comma-separated list of nats:// URLs for a cluster)
-// with the credentials in auth. The connection retries and reconnects for
-// ever, so a broker restart does not end the client.
+// Connect dials url (a comma-separated list of nats:// or tls:// URLs for
+// a cluster) with the credentials in auth. The connection retries and
+// reconnects for ever, so a broker restart does not end the client. A
+// failure to connect says what was tried and, where the cause is a common
+// one, what to check.
 func Connect(url, name string, auth Auth) (*nats.Conn, error) {
+	if err := checkURLs(url); err != nil {
+		return nil, err
+	}
+	if (auth.CertFile == "") != (auth.KeyFile == "") {
+		return nil, fmt.Errorf("broker: a client certificate needs both its certificate file and its key file (got %q and %q)", auth.CertFile, auth.KeyFile)
+	}
+	for _, f := range []string{auth.CAFile, auth.CertFile, auth.KeyFile, auth.CredsFile} {
+		if f == "" {
+			continue
+		}
+		if _, err := os.Stat(f); err != nil {
+			return nil, fmt.Errorf("broker: %w", err)
+		}
+	}
 	opts := []nats.Option{
 		nats.Name(name),
 		nats.MaxReconnects(-1),
@@ -256,9 +390,72 @@ func Connect(url, name string, auth Auth) (*nats.Conn, error) {
 	if auth.Token != "" {
 		opts = append(opts, nats.Token(auth.Token))
 	}
+	if auth.CAFile != "" {
+		opts = append(opts, nats.RootCAs(auth.CAFile))
+	}
+	if auth.CertFile != "" {
+		opts = append(opts, nats.ClientCert(auth.CertFile, auth.KeyFile))
+	}
+	if auth.CredsFile != "" {
+		opts = append(opts, nats.UserCredentials(auth.CredsFile))
+	}
 	nc, err := nats.Connect(url, opts...)
 	if err != nil {
-		return nil, fmt.Errorf("broker: connect %s: %w", url, err)
+		return nil, fmt.Errorf("broker: connect %s: %w%s", url, err, connectHint(err, auth))
 	}
 	return nc, nil
+}
+
+// checkURLs refuses a broker URL list with a scheme a NATS client port
+// does not speak (an http:// URL is the monitoring port's).
+func checkURLs(list string) error {
+	for _, u := range strings.Split(list, ",") {
+		u = strings.TrimSpace(u)
+		scheme, _, ok := strings.Cut(u, "://")
+		if !ok {
+			continue // host:port
+		}
+		switch strings.ToLower(scheme) {
+		case "nats", "tls", "ws", "wss":
+		case "http", "https":
+			return fmt.Errorf("broker: %s: want the broker's NATS client port as nats://HOST:PORT (tls:// for TLS; 4222 by default); an %s:// URL is its monitoring port's", u, strings.ToLower(scheme))
+		default:
+			return fmt.Errorf("broker: %s: scheme %q: want nats://HOST:PORT (or tls://, ws://, wss://)", u, scheme)
+		}
+	}
+	return nil
+}
+
+// connectHint is what to check after a failed connect, given its error.
+func connectHint(err error, auth Auth) string {
+	var nerr net.Error
+	var uerr x509.UnknownAuthorityError
+	var herr x509.HostnameError
+	switch {
+	case errors.Is(err, nats.ErrAuthorization) || strings.Contains(strings.ToLower(err.Error()), "authorization violation") ||
+		errors.Is(err, nats.ErrAuthExpired) || errors.Is(err, nats.ErrAuthRevoked):
+		who := "with no user"
+		switch {
+		case auth.CredsFile != "":
+			who = "with the credentials file " + auth.CredsFile
+		case auth.User != "":
+			who = fmt.Sprintf("as user %q", auth.User)
+			if auth.UserFrom != "" {
+				who += " (from " + auth.UserFrom + ")"
+			}
+		case auth.Token != "":
+			who = "with a token"
+		}
+		return fmt.Sprintf(" (refused %s: check the user and password, token or credentials the broker expects)", who)
+	case errors.As(err, &uerr) || strings.Contains(err.Error(), "certificate signed by unknown authority"):
+		return " (the broker's certificate is signed by an authority this host does not trust: give its CA file as [broker] tls_ca or --tls-ca)"
+	case errors.As(err, &herr):
+		return " (the broker's certificate does not name the host in the URL)"
+	case errors.Is(err, nats.ErrSecureConnRequired):
+		return " (the broker requires TLS: use tls:// URLs, and [broker] tls_ca when its certificate is from a private authority)"
+	case errors.Is(err, io.EOF) || errors.Is(err, io.ErrUnexpectedEOF) || errors.Is(err, nats.ErrBadHeaderMsg) ||
+		(errors.As(err, &nerr) && nerr.Timeout()):
+		return " (no NATS greeting: is this the broker's NATS client port, 4222 by default, and not its MQTT, monitoring (HTTP), WebSocket or cluster route port?)"
+	}
+	return ""
 }

@@ -4,6 +4,7 @@ import (
 	"context"
 	"crypto/rand"
 	"encoding/hex"
+	"encoding/json"
 	"errors"
 	"fmt"
 	"hash/fnv"
@@ -68,11 +69,14 @@ type Service struct {
 	// site file that says more (a commissioning needsSiteError), why.
 	stopped sync.Map
 
-	mu       sync.Mutex
-	held     map[string]*holding
-	ready    chan struct{}
-	httpLn   net.Listener
-	readyErr error
+	mu   sync.Mutex
+	held map[string]*holding
+	// leftElsewhere: assets this site file does not list whose data the
+	// unknown-asset sweep leaves to another worker (logged once).
+	leftElsewhere map[string]bool
+	ready         chan struct{}
+	httpLn        net.Listener
+	readyErr      error
 
 	// queryHook, when set (tests), is called by queries as their
 	// consumer is created, reset and fetched from (see querycons.go).
@@ -120,7 +124,7 @@ func New(cfg Config) (*Service, error) {
 	}
 	s := &Service{site: cfg.Site, nc: cfg.Conn, id: cfg.Worker, log: cfg.Logger, met: newMetrics(),
 		newEstimator: cfg.NewEstimator, commissioner: cfg.Commissioner, onEstimate: cfg.OnEstimate,
-		httpAddr: cfg.HTTP, memory: cfg.Memory, held: map[string]*holding{}, ready: make(chan struct{})}
+		httpAddr: cfg.HTTP, memory: cfg.Memory, held: map[string]*holding{}, leftElsewhere: map[string]bool{}, ready: make(chan struct{})}
 	if s.id == "" {
 		host, _ := os.Hostname()
 		var b [3]byte
@@ -195,6 +199,20 @@ func (s *Service) Run(ctx context.Context) error {
 	if err != nil {
 		return fmt.Errorf("live: %w", err)
 	}
+	// Listen first, so that an address in use stops serve before it
+	// touches the broker's streams; requests are served once they exist.
+	if s.httpAddr != "-" {
+		ln, err := net.Listen("tcp", s.httpAddr)
+		if err != nil {
+			return fmt.Errorf("live: http: %w", err)
+		}
+		s.httpLn = ln
+		defer func() {
+			if s.stores == nil {
+				ln.Close()
+			}
+		}()
+	}
 	sctx, cancel := context.WithTimeout(ctx, 30*time.Second)
 	s.stores, err = broker.Setup(sctx, js, broker.StreamSettings{
 		Replicas: s.site.Broker.Replicas, DataMaxAge: s.site.Broker.DataRetention.Duration, DataMaxBytes: s.site.Broker.DataMaxBytes,
@@ -204,6 +222,16 @@ func (s *Service) Run(ctx context.Context) error {
 	if err != nil {
 		return fmt.Errorf("live: %w%s", err, s.site.boundAdvice(err))
 	}
+	if kept := s.stores.KeptReplicas; len(kept) > 0 {
+		names := make([]string, len(kept))
+		for i, k := range kept {
+			names[i] = fmt.Sprintf("%s (%d)", k.Stream, k.Have)
+		}
+		s.log.Warn("replicas not lowered: "+kept[0].String(), "site_replicas", kept[0].Asked, "kept", strings.Join(names, ", "))
+	}
+	if cl := s.nc.ConnectedClusterName(); cl != "" && s.site.Broker.Replicas == 1 && len(s.stores.KeptReplicas) == 0 {
+		s.log.Warn("the broker is a cluster but [broker] replicas = 1: each stream and bucket is kept on one node only, so losing that node loses or stalls its data; set replicas = 3 (the same in every site file on the cluster)", "cluster", cl)
+	}
 	if n := s.stores.DeadLetterMaxBytes; n > 0 {
 		s.log.Info("dead letters kept up to a bound, the oldest giving way", "stream", broker.StreamDeadLetter, "max_bytes", n, "max_age", broker.DeadLetterMaxAge)
 	} else {
@@ -211,12 +239,7 @@ func (s *Service) Run(ctx context.Context) error {
 		s.log.Warn(msg, attrs...)
 	}
 	var srv *http.Server
-	if s.httpAddr != "-" {
-		ln, err := net.Listen("tcp", s.httpAddr)
-		if err != nil {
-			return fmt.Errorf("live: http: %w", err)
-		}
-		s.httpLn = ln
+	if ln := s.httpLn; ln != nil {
 		srv = &http.Server{Handler: s.Handler(), ReadHeaderTimeout: 10 * time.Second}
 		go srv.Serve(ln)
 		s.log.Info("http api listening", "addr", ln.Addr().String())
@@ -270,11 +293,29 @@ func (s *Service) assetOrder() []string {
 	return append(names[k:], names[:k]...)
 }
 
+// workerBeat is a worker's entry in the workers bucket: when it last
+// beat and the assets its site file lists, so that a worker whose site
+// file lacks an asset that another's lists (a new asset being rolled
+// out) leaves that asset's data to it instead of dead-lettering it.
+type workerBeat struct {
+	At     string   `json:"at"`
+	Assets []string `json:"assets"`
+}
+
+func (s *Service) heartbeat(now time.Time) []byte {
+	b := workerBeat{At: now.UTC().Format(time.RFC3339Nano)}
+	for _, a := range s.site.Assets {
+		b.Assets = append(b.Assets, a.Name)
+	}
+	data, _ := json.Marshal(b)
+	return data
+}
+
 func (s *Service) leaseRound(ctx context.Context, order []string) {
 	st := s.stores
 	rctx, cancel := context.WithTimeout(context.Background(), s.site.Service.LeaseTTL.Duration/2) // not ctx: a stop must not look like a lost lease
 	defer cancel()
-	_, err := st.Workers.Put(rctx, s.id, []byte(time.Now().UTC().Format(time.RFC3339Nano)))
+	_, err := st.Workers.Put(rctx, s.id, s.heartbeat(time.Now()))
 	if err != nil {
 		s.log.Warn("heartbeat failed", "err", err)
 	}

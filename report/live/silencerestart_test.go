@@ -91,3 +91,47 @@ func TestSilentAlarmOncePerSilenceAcrossRestarts(t *testing.T) {
 		t.Errorf("second silence dated %v, %v before the data's arrival; want the arrival (to the second)", at, d)
 	}
 }
+
+// A worker that takes an asset whose data was stored before it started
+// (a takeover re-reading the backlog) dates the asset's silence from the
+// broker's storage of the last batch, not from its re-reading it: the
+// README's subjects table promises the silent alarm is "dated from the
+// last stored batch, also across restarts and takeovers" (simulated
+// truth: the test's own publish time).
+func TestSilenceAfterTakeoverDatedFromStoredBacklog(t *testing.T) {
+	if testing.Short() {
+		t.Skip("runs a broker and the service")
+	}
+	h := newHarness(t)
+	site := testSite(t, strings.Replace(testSiteText, `idle = "400ms"`, "idle = \"400ms\"\nsilent_after = \"4s\"", 1))
+	h.publish(0, 1) // stored while no worker holds the asset
+	stored := time.Now()
+	time.Sleep(2500 * time.Millisecond) // the worker takes the asset well after the data
+	r := h.start(site, "w1")
+	var as []Alarm
+	waitFor(t, 30*time.Second, "the silent alarm", func() bool {
+		as = nil
+		ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
+		defer cancel()
+		if err := scan(ctx, h.js, broker.StreamAlarms, broker.AlarmSubject("fenwick-lane", AlarmSilent), func(d []byte) bool {
+			var a Alarm
+			if err := json.Unmarshal(d, &a); err != nil {
+				t.Fatal(err)
+			}
+			as = append(as, a)
+			return true
+		}); err != nil {
+			t.Fatal(err)
+		}
+		return len(as) == 1
+	})
+	r.stop(t)
+	since := as[0].Message[strings.Index(as[0].Message, "(since ")+7 : len(as[0].Message)-1]
+	at, err := time.Parse(time.RFC3339, since) // whole seconds
+	if err != nil {
+		t.Fatal(err)
+	}
+	if d := stored.Sub(at); d < -500*time.Millisecond || d > 1500*time.Millisecond {
+		t.Errorf("silence dated %v, %v before the data was stored; want the storage time (to the second), not the takeover", at, d)
+	}
+}

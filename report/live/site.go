@@ -109,6 +109,17 @@ type BrokerConfig struct {
 	Password string       `toml:"password"`
 	Token    string       `toml:"token"`
 	Users    []BrokerUser `toml:"users"`
+	// TLSCA, TLSCert and TLSKey are PEM files for reaching an external
+	// broker (--broker) over TLS: the certificate authorities to trust for
+	// its certificate, and the client certificate and key when it asks
+	// for one (both or neither); Credentials is a NATS credentials file
+	// for a broker that authenticates users that way. Relative paths are
+	// taken from the site file's directory. Not used by the embedded
+	// broker.
+	TLSCA       string `toml:"tls_ca"`
+	TLSCert     string `toml:"tls_cert"`
+	TLSKey      string `toml:"tls_key"`
+	Credentials string `toml:"credentials"`
 }
 
 // BrokerUser is one account of the embedded broker.
@@ -235,6 +246,21 @@ func (d *Duration) UnmarshalText(b []byte) error {
 // MarshalText writes the duration as Go does.
 func (d Duration) MarshalText() ([]byte, error) { return []byte(d.String()), nil }
 
+// CheckEmbeddedBroker checks the [broker] settings that only the embedded
+// broker uses (its [[broker.users]]); serve with --broker does not call
+// it, so that accounts it ignores need not be valid.
+func (s *Site) CheckEmbeddedBroker() error {
+	if s.Broker.Token != "" && len(s.Broker.Users) > 0 {
+		return fmt.Errorf("live: %s: broker: give users or a token, not both", s.Path)
+	}
+	for i, u := range s.Broker.Users {
+		if u.Name == "" || u.Password == "" {
+			return fmt.Errorf("live: %s: broker.users[%d]: name and password are required", s.Path, i+1)
+		}
+	}
+	return nil
+}
+
 // LoadSite reads and validates a site file.
 func LoadSite(path string) (*Site, error) {
 	data, err := os.ReadFile(path)
@@ -354,12 +380,12 @@ func (s *Site) validate() error {
 	if s.Broker.Replicas < 1 || s.Broker.Replicas > 5 {
 		return fmt.Errorf("broker.replicas %d: want 1 to 5", s.Broker.Replicas)
 	}
-	if s.Broker.Token != "" && len(s.Broker.Users) > 0 {
-		return fmt.Errorf("broker: give users or a token, not both")
+	if (s.Broker.TLSCert == "") != (s.Broker.TLSKey == "") {
+		return fmt.Errorf("broker: give tls_cert and tls_key together (a client certificate and its key), or neither")
 	}
-	for i, u := range s.Broker.Users {
-		if u.Name == "" || u.Password == "" {
-			return fmt.Errorf("broker.users[%d]: name and password are required", i+1)
+	for _, f := range []*string{&s.Broker.TLSCA, &s.Broker.TLSCert, &s.Broker.TLSKey, &s.Broker.Credentials} {
+		if *f != "" && !filepath.IsAbs(*f) {
+			*f = filepath.Join(filepath.Dir(s.Path), *f)
 		}
 	}
 	if s.Service.Start.kind == startUnset {

@@ -2,6 +2,7 @@ package live
 
 import (
 	"context"
+	"encoding/json"
 	"errors"
 	"fmt"
 	"hash/fnv"
@@ -91,6 +92,7 @@ func (s *Service) sweepUnknown(ctx context.Context, made map[string]*orphanConsu
 	if err != nil {
 		return err
 	}
+	elsewhere := &otherWorkers{}
 	for subj := range info.State.Subjects {
 		rest, ok := strings.CutPrefix(subj, broker.DataPrefix+".")
 		if !ok {
@@ -108,6 +110,23 @@ func (s *Service) sweepUnknown(ctx context.Context, made map[string]*orphanConsu
 			o.reason, o.filters = broker.ReasonMalformed, []string{subj}
 		}
 		key := o.reason + "/" + asset
+		if o.reason == broker.ReasonUnknownAsset {
+			if who, err := elsewhere.find(rctx, s, asset); err != nil {
+				return err
+			} else if who != "" {
+				// Another worker's site file lists the asset (a new
+				// asset being rolled out): its worker reads the data.
+				delete(made, key)
+				if !s.leftElsewhere[asset] {
+					s.leftElsewhere[asset] = true
+					s.log.Info("data for an asset this site file does not list is left to a worker that lists it", "asset", asset, "by", who)
+				}
+				continue
+			}
+			if s.leftElsewhere[asset] {
+				delete(s.leftElsewhere, asset)
+			}
+		}
 		if made[key] != nil {
 			continue
 		}
@@ -124,7 +143,11 @@ func (s *Service) sweepUnknown(ctx context.Context, made map[string]*orphanConsu
 			s.log.Warn("consumer for unread data not created", "asset", asset, "reason", o.reason, "err", err)
 			continue
 		}
-		s.log.Warn("data that no asset worker reads: dead-lettering it", "asset", asset, "reason", o.reason)
+		if o.reason == broker.ReasonUnknownAsset {
+			s.log.Warn("data for an asset that no worker's site file lists and no worker holds: dead-lettering it", "asset", asset, "reason", o.reason)
+		} else {
+			s.log.Warn("data that no asset worker reads: dead-lettering it", "asset", asset, "reason", o.reason)
+		}
 		made[key] = &orphanConsumer{orphan: o, cons: cons}
 	}
 	var errs []error
@@ -134,6 +157,45 @@ func (s *Service) sweepUnknown(ctx context.Context, made map[string]*orphanConsu
 		}
 	}
 	return errors.Join(errs...)
+}
+
+// otherWorkers finds, for one sweep, whether a worker other than this
+// one reads an asset that this site file does not list: one holds its
+// lease, or one's heartbeat (workerBeat) lists it. The heartbeats are
+// read once per sweep, when the first unknown asset needs them.
+type otherWorkers struct {
+	read  bool
+	lists map[string]string // asset -> a worker listing it
+}
+
+// find returns the id of a worker that holds or lists asset, or "".
+func (o *otherWorkers) find(ctx context.Context, s *Service, asset string) (string, error) {
+	if e, err := s.stores.Lease.Get(ctx, asset); err == nil && len(e.Value()) > 0 {
+		return string(e.Value()), nil
+	} else if err != nil && !errors.Is(err, jetstream.ErrKeyNotFound) && !errors.Is(err, jetstream.ErrInvalidKey) {
+		return "", fmt.Errorf("live: lease of asset %q not readable: %w", asset, err)
+	}
+	if !o.read {
+		o.read, o.lists = true, map[string]string{}
+		w, err := s.stores.Workers.WatchAll(ctx, jetstream.IgnoreDeletes())
+		if err != nil {
+			return "", fmt.Errorf("live: workers not readable: %w", err)
+		}
+		defer w.Stop()
+		for e := range w.Updates() {
+			if e == nil {
+				break // the entries held now have all been read
+			}
+			var b workerBeat
+			if json.Unmarshal(e.Value(), &b) != nil || e.Key() == s.id {
+				continue // a worker of an earlier version: a time only
+			}
+			for _, a := range b.Assets {
+				o.lists[a] = e.Key()
+			}
+		}
+	}
+	return o.lists[asset], nil
 }
 
 // orphan describes data that no asset worker reads: an asset the site

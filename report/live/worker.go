@@ -65,6 +65,12 @@ type assetWorker struct {
 	// taking the asset); silent says the asset's silent alarm is raised.
 	lastData time.Time
 	silent   bool
+	// backlogTo is the broker's time of the asset's last stored batch when
+	// the worker took the asset (zero: none). Batches stored no later are
+	// backlog: reading them again does not move lastData, which
+	// silenceAtStart already set from the broker's time of the last one,
+	// so that a takeover does not date a silence from its own start.
+	backlogTo time.Time
 	// stall is when the worker last found the stream holding data for the
 	// asset that its consumer had not delivered while an idle close was
 	// due (see storedAhead); zero when it is not waiting for such data.
@@ -508,7 +514,7 @@ func (w *assetWorker) handle(m jetstream.Msg) error {
 		return w.deadLetter(broker.ReasonMalformed, subj, seq, data,
 			fmt.Errorf("live: %s: times %v to %v give window indices beyond %v", subj, b.Time[0], b.Time[b.Len()-1], float64(maxWindowIndex)))
 	case heldBack:
-		w.lastData, w.silent = t0, false
+		w.noteData(md.Timestamp, t0)
 		met.messages.WithLabelValues(w.asset.Name, "held").Inc()
 		w.log.Warn("batch held: far ahead of every other sensor", "subject", subj, "seq", seq, "start", b.Time[0])
 		return w.refuseRejected(t0)
@@ -523,7 +529,7 @@ func (w *assetWorker) handle(m jetstream.Msg) error {
 		return w.deadLetter(broker.ReasonLate, subj, seq, data,
 			fmt.Errorf("live: %s: samples from %v to %v fall in windows already published", subj, b.Time[0], b.Time[b.Len()-1]))
 	}
-	w.lastData, w.silent = t0, false
+	w.noteData(md.Timestamp, t0)
 	met.messages.WithLabelValues(w.asset.Name, "accepted").Inc()
 	met.samples.WithLabelValues(w.asset.Name).Add(float64(b.Len() - w.asm.overlap))
 	if k := w.asm.overlap; k > 0 {
@@ -623,6 +629,17 @@ func (w *assetWorker) noteOverlap(sensor, subj string, seq uint64, k int, b *bro
 	}
 }
 
+// noteData records a batch filed or held at wall time now that the
+// broker stored at stored: a batch stored after the worker took the
+// asset ends any silence and dates the next from now; backlog (see
+// backlogTo) leaves the silence as silenceAtStart found it.
+func (w *assetWorker) noteData(stored, now time.Time) {
+	if !stored.IsZero() && !w.backlogTo.IsZero() && !stored.After(w.backlogTo) {
+		return
+	}
+	w.lastData, w.silent = now, false
+}
+
 // silenceAtStart returns, for a worker taking the asset, when its data
 // last arrived and whether the silent alarm is already raised for the
 // silence since: the broker's time of the asset's last stored batch, or
@@ -636,6 +653,7 @@ func (w *assetWorker) silenceAtStart(ctx context.Context) (time.Time, bool) {
 	if ds, err := w.svc.stores.JS.Stream(ctx, broker.StreamData); err == nil {
 		if m, err := ds.GetLastMsgForSubject(ctx, broker.DataFilter(w.asset.Name)); err == nil {
 			last = m.Time
+			w.backlogTo = m.Time
 		} else if !errors.Is(err, jetstream.ErrMsgNotFound) {
 			w.log.Warn("last data time not readable: silence counted from now", "err", err)
 		}

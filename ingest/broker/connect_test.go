@@ -1,0 +1,164 @@
+package broker
+
+import (
+	"crypto/ecdsa"
+	"crypto/elliptic"
+	"crypto/rand"
+	"crypto/x509"
+	"crypto/x509/pkix"
+	"encoding/pem"
+	"math/big"
+	"net"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+	"time"
+
+	"github.com/nats-io/nats-server/v2/server"
+)
+
+// A failed connect names the URL and what to check: an http:// URL (the
+// monitoring port's) is refused at once, a port that sends no NATS
+// greeting is named as probably not the client port, and a refused login
+// names the user and where it came from.
+func TestConnectErrorsNameTheCause(t *testing.T) {
+	_, err := Connect("nats://127.0.0.1:46151,http://127.0.0.1:46152", "test", Auth{})
+	if err == nil || !strings.Contains(err.Error(), "http://127.0.0.1:46152") || !strings.Contains(err.Error(), "monitoring port") {
+		t.Errorf("http:// URL: %v; want it named as the monitoring port's", err)
+	}
+
+	// A port that closes without a greeting, as an MQTT listener does.
+	ln, err := net.Listen("tcp", "127.0.0.1:46153")
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer ln.Close()
+	go func() {
+		for {
+			c, err := ln.Accept()
+			if err != nil {
+				return
+			}
+			c.Close()
+		}
+	}()
+	_, err = Connect("nats://127.0.0.1:46153", "test", Auth{})
+	if err == nil || !strings.Contains(err.Error(), "127.0.0.1:46153") || !strings.Contains(err.Error(), "NATS client port") {
+		t.Errorf("a port without a NATS greeting: %v; want the URL and a hint about the client port", err)
+	}
+
+	srv, err := StartServer(ServerConfig{StoreDir: t.TempDir(), Host: "127.0.0.1", Port: 46154, MQTTPort: -1,
+		Users: []User{{Name: "pipeline", Password: "harrow-fen-pipeline"}}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer srv.Shutdown()
+	_, err = Connect(srv.ClientURL(), "test", Auth{User: "pipeline", Password: "wrong", UserFrom: "site.toml [broker] user"})
+	if err == nil || !strings.Contains(err.Error(), `user "pipeline"`) || !strings.Contains(err.Error(), "site.toml [broker] user") {
+		t.Errorf("a wrong password: %v; want the user and where it came from", err)
+	}
+	nc, err := Connect(srv.ClientURL(), "test", Auth{User: "pipeline", Password: "harrow-fen-pipeline"})
+	if err != nil {
+		t.Fatalf("the right password: %v", err)
+	}
+	nc.Close()
+}
+
+// Connect reaches a broker that requires TLS with a client certificate,
+// given the CA file and the client's certificate and key (a private
+// authority generated here with crypto/x509: simulated truth), and says
+// what to set when the CA is not given.
+func TestConnectTLSWithPrivateCA(t *testing.T) {
+	dir := t.TempDir()
+	caKey, caCert, caDER := newCert(t, "Kestrel Moor test CA", nil, nil, true)
+	write := func(name, typ string, der []byte) string {
+		p := filepath.Join(dir, name)
+		if err := os.WriteFile(p, pem.EncodeToMemory(&pem.Block{Type: typ, Bytes: der}), 0o600); err != nil {
+			t.Fatal(err)
+		}
+		return p
+	}
+	keyDER := func(k *ecdsa.PrivateKey) []byte {
+		b, err := x509.MarshalECPrivateKey(k)
+		if err != nil {
+			t.Fatal(err)
+		}
+		return b
+	}
+	caFile := write("ca.pem", "CERTIFICATE", caDER)
+	sKey, _, sDER := newCert(t, "127.0.0.1", caCert, caKey, false)
+	cKey, _, cDER := newCert(t, "kestrel-moor-worker", caCert, caKey, false)
+	srvCert, srvKey := write("server.pem", "CERTIFICATE", sDER), write("server-key.pem", "EC PRIVATE KEY", keyDER(sKey))
+	cliCert, cliKey := write("client.pem", "CERTIFICATE", cDER), write("client-key.pem", "EC PRIVATE KEY", keyDER(cKey))
+
+	tc, err := server.GenTLSConfig(&server.TLSConfigOpts{CertFile: srvCert, KeyFile: srvKey, CaFile: caFile, Verify: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	ns, err := server.NewServer(&server.Options{Host: "127.0.0.1", Port: 46160, NoSigs: true, TLS: true, TLSVerify: true, TLSConfig: tc, TLSTimeout: 2})
+	if err != nil {
+		t.Fatal(err)
+	}
+	go ns.Start()
+	defer func() { ns.Shutdown(); ns.WaitForShutdown() }()
+	if !ns.ReadyForConnections(10 * time.Second) {
+		t.Fatal("TLS server not ready")
+	}
+	url := "tls://127.0.0.1:46160"
+
+	nc, err := Connect(url, "test", Auth{CAFile: caFile, CertFile: cliCert, KeyFile: cliKey})
+	if err != nil {
+		t.Fatalf("with the CA and a client certificate: %v", err)
+	}
+	if !nc.TLSRequired() {
+		t.Error("connected without TLS")
+	}
+	nc.Close()
+	if _, err := Connect(url, "test", Auth{CertFile: cliCert, KeyFile: cliKey}); err == nil || !strings.Contains(err.Error(), "tls_ca") {
+		t.Errorf("without the CA file: %v; want a hint to set tls_ca", err)
+	}
+	if _, err := Connect(url, "test", Auth{CAFile: caFile}); err == nil {
+		t.Error("connected without the client certificate the broker requires")
+	}
+	if _, err := Connect(url, "test", Auth{CAFile: caFile, CertFile: cliCert}); err == nil || !strings.Contains(err.Error(), "key file") {
+		t.Errorf("a certificate without its key: %v; want both asked for", err)
+	}
+}
+
+// newCert makes an ECDSA P-256 certificate for name (an IP address is
+// put in the IP SANs), signed by parent (self-signed when nil).
+func newCert(t *testing.T, name string, parent *x509.Certificate, parentKey *ecdsa.PrivateKey, ca bool) (*ecdsa.PrivateKey, *x509.Certificate, []byte) {
+	t.Helper()
+	key, err := ecdsa.GenerateKey(elliptic.P256(), rand.Reader)
+	if err != nil {
+		t.Fatal(err)
+	}
+	tmpl := &x509.Certificate{
+		SerialNumber: big.NewInt(time.Now().UnixNano()),
+		Subject:      pkix.Name{CommonName: name},
+		NotBefore:    time.Now().Add(-time.Hour),
+		NotAfter:     time.Now().Add(24 * time.Hour),
+		KeyUsage:     x509.KeyUsageDigitalSignature,
+		ExtKeyUsage:  []x509.ExtKeyUsage{x509.ExtKeyUsageServerAuth, x509.ExtKeyUsageClientAuth},
+	}
+	if ip := net.ParseIP(name); ip != nil {
+		tmpl.IPAddresses = []net.IP{ip}
+	}
+	if ca {
+		tmpl.IsCA, tmpl.BasicConstraintsValid = true, true
+		tmpl.KeyUsage |= x509.KeyUsageCertSign
+	}
+	if parent == nil {
+		parent, parentKey = tmpl, key
+	}
+	der, err := x509.CreateCertificate(rand.Reader, tmpl, parent, &key.PublicKey, parentKey)
+	if err != nil {
+		t.Fatal(err)
+	}
+	c, err := x509.ParseCertificate(der)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return key, c, der
+}
