@@ -210,25 +210,12 @@ func caveatMisfitSteps(r *route.Route, kind map[string]string) {
 		f.Message += fmt.Sprintf("; it rests on fits that %s: %s, so it may be the model's error rather than a change in the current",
 			strings.Join(why, " or "), keyList(named))
 		if rests && f.Severity != route.SeverityInfo {
-			f.Message += " (reported a severity lower for it)"
-			if f.Severity == route.SeverityWarning {
-				f.Severity = route.SeverityCaution
-			} else {
-				f.Severity = route.SeverityInfo
-			}
+			demoteFinding(f)
 			demoted = true
 		}
 	}
 	if demoted {
-		// Findings are sorted by chainage, the most pressing first at equal
-		// chainage (route.Build).
-		sort.SliceStable(r.Findings, func(i, j int) bool {
-			a, b := &r.Findings[i], &r.Findings[j]
-			if a.From != b.From {
-				return a.From < b.From
-			}
-			return severityRank(string(a.Severity)) < severityRank(string(b.Severity))
-		})
+		sortFindings(r.Findings)
 	}
 }
 
@@ -241,4 +228,27 @@ func keyList(k []string) string {
 		return k[0]
 	}
 	return strings.Join(k[:len(k)-1], ", ") + " and " + k[len(k)-1]
+}
+
+// demoteFinding reports f a severity lower (a warning becomes a caution,
+// anything else information) and says so in its message.
+func demoteFinding(f *route.Finding) {
+	f.Message += " (reported a severity lower for it)"
+	if f.Severity == route.SeverityWarning {
+		f.Severity = route.SeverityCaution
+	} else {
+		f.Severity = route.SeverityInfo
+	}
+}
+
+// sortFindings puts findings back in route.Build's order after severities
+// changed: by chainage, the most pressing first at equal chainage.
+func sortFindings(fs []route.Finding) {
+	sort.SliceStable(fs, func(i, j int) bool {
+		a, b := &fs[i], &fs[j]
+		if a.From != b.From {
+			return a.From < b.From
+		}
+		return severityRank(string(a.Severity)) < severityRank(string(b.Severity))
+	})
 }

@@ -292,25 +292,12 @@ func caveatStepsAt(r *route.Route, flagged map[string]string, words func([]strin
 		}
 		f.Message += words(why)
 		if f.Severity != route.SeverityInfo {
-			f.Message += " (reported a severity lower for it)"
-			if f.Severity == route.SeverityWarning {
-				f.Severity = route.SeverityCaution
-			} else {
-				f.Severity = route.SeverityInfo
-			}
+			demoteFinding(f)
 			demoted = true
 		}
 	}
 	if demoted {
-		// Findings are sorted by chainage, the most pressing first at
-		// equal chainage (route.Build).
-		sort.SliceStable(r.Findings, func(i, j int) bool {
-			a, b := &r.Findings[i], &r.Findings[j]
-			if a.From != b.From {
-				return a.From < b.From
-			}
-			return severityRank(string(a.Severity)) < severityRank(string(b.Severity))
-		})
+		sortFindings(r.Findings)
 	}
 }
 
@@ -605,23 +592,12 @@ func caveatTradedSteps(r *route.Route, fits []Fit, ac bool) {
 		f.Message += "; a line beside the pair, not counted in its net current, changes by about as much between the same stations (" + match +
 			"): the fit trades current between such a line and the cores, so it may be the fit's error rather than current leaving or joining the circuit"
 		if f.Severity != route.SeverityInfo {
-			f.Message += " (reported a severity lower for it)"
-			if f.Severity == route.SeverityWarning {
-				f.Severity = route.SeverityCaution
-			} else {
-				f.Severity = route.SeverityInfo
-			}
+			demoteFinding(f)
 			demoted = true
 		}
 	}
 	if demoted {
-		sort.SliceStable(r.Findings, func(i, j int) bool {
-			a, b := &r.Findings[i], &r.Findings[j]
-			if a.From != b.From {
-				return a.From < b.From
-			}
-			return severityRank(string(a.Severity)) < severityRank(string(b.Severity))
-		})
+		sortFindings(r.Findings)
 	}
 }
 
@@ -690,22 +666,11 @@ func caveatTradedTrackSteps(tr, r *route.Route, fits []Fit, members []trackSourc
 		}
 		f.Message += fmt.Sprintf("; it lies beside conductor 1's go-and-return pair, whose net current changes by about as much between the same stations (%.3g A at %s, %.3g A at %s): the fit trades current between this line and the cores, so it may be the fit's error rather than a change in current", math.Abs(pa.Current), a, math.Abs(pb.Current), b)
 		if f.Severity != route.SeverityInfo {
-			f.Message += " (reported a severity lower for it)"
-			if f.Severity == route.SeverityWarning {
-				f.Severity = route.SeverityCaution
-			} else {
-				f.Severity = route.SeverityInfo
-			}
+			demoteFinding(f)
 			demoted = true
 		}
 	}
 	if demoted {
-		sort.SliceStable(tr.Findings, func(i, j int) bool {
-			a, b := &tr.Findings[i], &tr.Findings[j]
-			if a.From != b.From {
-				return a.From < b.From
-			}
-			return severityRank(string(a.Severity)) < severityRank(string(b.Severity))
-		})
+		sortFindings(tr.Findings)
 	}
 }
