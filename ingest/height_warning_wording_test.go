@@ -34,7 +34,7 @@ func TestHeightWarningEveryColumnRead(t *testing.T) {
 
 // TestHeightWarningLeftOut checks WithHeightWarning(false), the option a
 // base-station correction reads its base log with (its positions are not
-// used): a base log recording its fixed latitude and longitude drew advice
+// used): a base log that holds its fixed latitude and longitude drew advice
 // to map a height that could change nothing (found in review).
 func TestHeightWarningLeftOut(t *testing.T) {
 	const text = "time,lat,lon,bx,by,bz\n" +
