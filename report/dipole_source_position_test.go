@@ -4,11 +4,8 @@ import (
 	"bytes"
 	"encoding/json"
 	"math"
-	"math/rand/v2"
 	"slices"
 	"testing"
-
-	"undercurrent/inverse"
 )
 
 // checkDipoleSource checks the document's dipole source in group key
@@ -98,18 +95,6 @@ func TestDipoleSourcePositionBesideCable(t *testing.T) {
 // object found with no conductor under it, 1 m north of the readings'
 // centre.
 func TestDipoleSourcePositionAlone(t *testing.T) {
-	obj := [3]float64{26, 1, -1.1}
-	moment := [3]float64{0, 1.5, -3.5}
-	rng := rand.New(rand.NewPCG(31, 131))
-	var probs []*inverse.Problem
-	for i := range 13 {
-		probs = append(probs, objectTraverse(rng, 6+4*float64(i), 8, 0.1, 1, func(r [3]float64) [3]float64 {
-			return inverse.Dipole{Pos: obj}.Field(r, moment)
-		}))
-	}
-	d, err := Build(Document{}, objectFits(t, probs), &BuildSettings{SensorHeight: 0.3, MinCover: 0.6})
-	if err != nil {
-		t.Fatal(err)
-	}
+	d, obj, _ := valveBodyAlone(t)
 	checkDipoleSource(t, d, "T06", obj)
 }

@@ -66,19 +66,7 @@ func objectFits(t *testing.T, probs []*inverse.Problem) []Fit {
 // carried no current, which the rule for an object beside a conductor
 // refused. The truth: one object where it lies, and no conductor.
 func TestBuildFindsObjectAlone(t *testing.T) {
-	obj := [3]float64{26, 1, -1.1}
-	moment := [3]float64{0, 1.5, -3.5}
-	rng := rand.New(rand.NewPCG(31, 131))
-	var probs []*inverse.Problem
-	for i := range 13 {
-		probs = append(probs, objectTraverse(rng, 6+4*float64(i), 8, 0.1, 1, func(r [3]float64) [3]float64 {
-			return inverse.Dipole{Pos: obj}.Field(r, moment)
-		}))
-	}
-	d, err := Build(Document{}, objectFits(t, probs), &BuildSettings{SensorHeight: 0.3, MinCover: 0.6})
-	if err != nil {
-		t.Fatal(err)
-	}
+	d, obj, moment := valveBodyAlone(t)
 	found := 0
 	for _, f := range d.Findings {
 		switch f.Kind {
@@ -274,4 +262,25 @@ func TestBuildACMomentSign(t *testing.T) {
 	if found != 1 {
 		t.Errorf("%d objects, want 1", found)
 	}
+}
+
+// valveBodyAlone builds the document of the Kestrel Moor valve body alone
+// (TestBuildFindsObjectAlone's survey) and returns it with the body's
+// simulated position and moment.
+func valveBodyAlone(t *testing.T) (d *Document, obj, moment [3]float64) {
+	t.Helper()
+	obj = [3]float64{26, 1, -1.1}
+	moment = [3]float64{0, 1.5, -3.5}
+	rng := rand.New(rand.NewPCG(31, 131))
+	var probs []*inverse.Problem
+	for i := range 13 {
+		probs = append(probs, objectTraverse(rng, 6+4*float64(i), 8, 0.1, 1, func(r [3]float64) [3]float64 {
+			return inverse.Dipole{Pos: obj}.Field(r, moment)
+		}))
+	}
+	d, err := Build(Document{}, objectFits(t, probs), &BuildSettings{SensorHeight: 0.3, MinCover: 0.6})
+	if err != nil {
+		t.Fatal(err)
+	}
+	return d, obj, moment
 }
