@@ -82,15 +82,20 @@ type BuildSettings struct {
 	MinStep float64
 	// Noise is the reading noise the fits were given (inverse.Problem
 	// Sigma), nT; 0 when they estimated it. It is the yardstick for
-	// calling a group's fit poor: with 0 the median of the groups' own
-	// noise estimates is used when there are at least three groups.
+	// calling a group's fit poor: with 0, when there are at least three
+	// groups, each group's measured noise (Fit.MeasuredNoise, else
+	// MeasuredNoise) times the survey's reference ratio of fit to
+	// measured noise, or without measured noise the median of the groups'
+	// own noise estimates (yardstick.go).
 	Noise float64
 	// MeasuredNoise is the noise of the fitted values measured apart from
 	// the fits, nT (for AC, the windows' own sine-fit residuals; for DC, the
 	// fourth differences of successive readings); 0 when not
-	// measured. With Noise 0 the yardstick for a poor fit is the median of
-	// the groups' own estimates, which a misfit most groups share raises to
-	// itself; MeasuredNoise lets Build warn of that (sharedMisfit).
+	// measured. It stands in for a group's own Fit.MeasuredNoise when
+	// that is 0, in the yardstick for a poor fit (yardstick.go) and in the
+	// warning of a misfit many groups share (sharedMisfit), which the
+	// yardstick, taken from the lower quartile of the groups' fits, takes
+	// as the norm once over three quarters of them share it.
 	MeasuredNoise float64
 	// ProfileMax is the most readings per group kept for the report's
 	// plots; 0 means 240, negative keeps none.
@@ -206,18 +211,7 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 		d.MinCover = &MinCover{Depth: bs.MinCover, Code: bs.CoverCode}
 	}
 
-	refSigma := bs.Noise
-	if refSigma == 0 {
-		var sig []float64
-		for _, f := range fits {
-			if f.Result != nil && f.Result.Sigma > 0 {
-				sig = append(sig, f.Result.Sigma)
-			}
-		}
-		if len(sig) >= 3 {
-			refSigma = median(sig)
-		}
-	}
+	ref := yardstickOf(fits, &bs)
 
 	rs := &route.Settings{StepK: bs.StepK, MinStep: bs.MinStep, MinCover: bs.MinCover, CoverCode: bs.CoverCode, GroundSigma: bs.GroundSigma}
 	d.DepthReference.GroundSigma = bs.GroundSigma
@@ -225,7 +219,7 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 		rs.SensorHeight = bs.SensorHeight
 	}
 	rs.DepthsBelowGround = d.DepthReference.Kind == DepthBelowGround
-	if refSigma == 0 {
+	if !ref.set() {
 		rs.MaxReducedChi2 = -1
 	}
 	var stations []route.Station
@@ -247,13 +241,7 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 		stations = make([]route.Station, 0, len(fits))
 		pairRoute = followsPair(fits, ac)
 		for _, f := range fits {
-			// With the noise given, each fit is measured against its own
-			// (an AC group's windows may hold fewer samples than another's).
-			ref := refSigma
-			if bs.Noise > 0 && f.Problem != nil && f.Problem.Sigma > 0 {
-				ref = f.Problem.Sigma
-			}
-			g, st := buildGroup(&f, ac, ref, bs.ProfileMax, pairRoute, bs.SensorHeight)
+			g, st := buildGroup(&f, ac, ref.of(&f), bs.ProfileMax, pairRoute, bs.SensorHeight)
 			d.Groups = append(d.Groups, g)
 			stations = append(stations, st)
 		}
@@ -367,13 +355,13 @@ func sharedMisfit(fits []Fit, bs *BuildSettings, rs *route.Settings) string {
 	n, misses := measuredMisfits(fits, bs, rs)
 	bad := len(misses)
 	// A third of the groups or more: at half, the median of the groups'
-	// own noise estimates, the poor-fit yardstick, lies between the two
-	// kinds, and the misfits passed as sound (three of six traverses over
-	// three cables of one circuit, 600 nT against 0.7 nT). Without that
-	// yardstick (the route's check off: fewer than three groups) one is
-	// enough: a lone traverse fitted with the wrong model (one line over
-	// a go-and-return pair, half its depth and a tenth of its current)
-	// was "1 sound", with no word.
+	// own noise estimates, the poor-fit yardstick when the noise is not
+	// measured, lies between the two kinds, and the misfits passed as
+	// sound (three of six traverses over three cables of one circuit, 600
+	// nT against 0.7 nT). Without a yardstick (the route's check off:
+	// fewer than three groups) one is enough: a lone traverse fitted with
+	// the wrong model (one line over a go-and-return pair, half its depth
+	// and a tenth of its current) was "1 sound", with no word.
 	least := 2
 	if rs.MaxReducedChi2 < 0 {
 		least = 1
@@ -825,8 +813,8 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute boo
 		st.SigmasPerMisfit = math.Sqrt(float64(3*len(pts))) / res.Sigma
 	}
 	if refSigma > 0 && res.Sigma > 0 {
-		// Chi-square against the yardstick noise, so that a group fitting
-		// much worse than the others stands out.
+		// Chi-square against the yardstick noise (yardstick.go), so that a
+		// group fitting much worse than its noise allows stands out.
 		st.Chi2 = res.Chi2 * (res.Sigma / refSigma) * (res.Sigma / refSigma)
 		st.DOF = res.DOF
 		g.ReferenceNoise, g.ReferenceChi2 = refSigma, st.Chi2

@@ -262,10 +262,13 @@ type Group struct {
 	// given, or the fit's own estimate from its residuals; zero when
 	// unknown.
 	Noise float64 `json:"noise_nt,omitempty"`
-	// ReferenceNoise is the survey's reference reading noise, nT: the
-	// noise given for the run or, when it was estimated, the median of
-	// the groups' own estimates (with three groups or more). It is the
-	// yardstick that calls a fit poor. Zero when there is none.
+	// ReferenceNoise is the group's reference reading noise, nT: the
+	// noise given for the run or, when it was estimated (with three
+	// groups or more), the group's noise measured apart from its fit
+	// times the survey's reference ratio (the lower quartile of the
+	// groups' fit noise over their measured noise, at least 1), or
+	// without measured noise the median of the groups' own estimates. It
+	// is the yardstick that calls a fit poor. Zero when there is none.
 	ReferenceNoise float64 `json:"reference_noise_nt,omitempty"`
 	// ReferenceChi2 is the chi-square of the fit against ReferenceNoise,
 	//

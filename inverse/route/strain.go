@@ -11,10 +11,11 @@ import (
 // Fits the model misses, judged against the noise measured apart from them.
 //
 // A fit's reduced chi-square is only as good as its yardstick. When the
-// noise is estimated from the fits' own residuals, the yardstick is the
+// noise is estimated from the fits' own residuals, the yardstick was the
 // route's typical fit (package report: the median of the groups' noise
-// estimates), and a source the model lacks that spoils half the route
-// raises it to itself. At a tee (a 40 A feeder losing 15 A to a branch at
+// estimates, still so where no noise is measured apart from the fits),
+// and a source the model lacks that spoils half the route raises it to
+// itself. At a tee (a 40 A feeder losing 15 A to a branch at
 // 45 degrees, traverses every 4 m) the branch's field, outside the
 // traverses but a few metres off, pulled the fits of the five traverses
 // past it 0.3-1.6 A low (1.3-6.4%) with misfits of 9-47 nT RMS against 2 nT
@@ -59,7 +60,10 @@ import (
 //   - a step some of whose stations, bracket to bracket, are strained
 //     names them, with their ratios and shifts.
 //
-// The poor-fit findings are not changed: they keep the route's yardstick.
+// The poor-fit findings are not changed: they keep the route's yardstick,
+// which package report now takes from the measured noise the same way
+// (each group's measured noise times the lower quartile of the groups'
+// ratios, at least 1: report yardstick.go).
 
 // strainRef is the quantile of the stations' misfit ratios taken as the
 // route's reference ratio.
