@@ -559,11 +559,11 @@ type freqFit struct {
 	// cols and are filled by load.
 	nuisance []float64
 	// slope gives each harmonic and each nuisance frequency its slope
-	// columns (DemodSettings.Harmonics and Nuisance); the fundamental
-	// takes none, since with the frequency fitted the two are not told
-	// apart (the frequency is the slope of the phase). The harmonics'
-	// slope columns follow the basis columns (and τ), before the
-	// nuisance's.
+	// columns (DemodSettings.Harmonics and Nuisance), and the fundamental
+	// the change of its amplitude, τ(A cos ωτ + B sin ωτ), one column per
+	// axis eliminated in fit, not the change of its phase: the frequency
+	// is the slope of the phase. The harmonics' slope columns follow the
+	// basis columns (and τ), before the nuisance's.
 	slope  bool
 	p      int          // linear parameters: 3, 2 per harmonic, 1 for drift, 2 per harmonic with slope, then the nuisance columns
 	n      int          // samples in the buffers
@@ -859,8 +859,12 @@ func (f *freqFit) fit(t []float64, freq0 float64, maxIter int) (freq float64, it
 	if n != f.n {
 		panic("calibrate: freqFit: times differ in length from the loaded series")
 	}
-	if n <= p+1 {
-		return 0, 0, q, fmt.Errorf("calibrate: four-parameter fit: %d samples for %d parameters", n, p+1)
+	np := p + 1 // the parameters per axis: the basis and the frequency
+	if f.slope {
+		np++ // and the amplitude's change
+	}
+	if n <= np {
+		return 0, 0, q, fmt.Errorf("calibrate: four-parameter fit: %d samples for %d parameters", n, np)
 	}
 	span := t[n-1] - t[0]
 	if !(span > 0) {
@@ -871,7 +875,8 @@ func (f *freqFit) fit(t []float64, freq0 float64, maxIter int) (freq float64, it
 	g := f.gram
 	zs, zc, b0 := f.zs, f.zc, f.b0
 	// A_k, B_k of the frequency column: the three-parameter fit's at freq0
-	// on the first pass, then each step's.
+	// on the first pass, then each step's; with slope, each pass's fit with
+	// the border columns (below).
 	var a, b [3]float64
 	for it := 1; it <= maxIter; it++ {
 		iters = it
@@ -883,6 +888,17 @@ func (f *freqFit) fit(t []float64, freq0 float64, maxIter int) (freq float64, it
 		}
 		cholSolve(f.l, zs)
 		cholSolve(f.l, zc)
+		// The border columns τ sin ωτ, τ cos ωτ with the basis projected
+		// out: their 2×2 normal block, for the fundamental's change of
+		// amplitude (slope, below).
+		mss, msc, mcc := g[p*m+p], g[p*m+p+1], g[(p+1)*m+p+1]
+		for j := 0; j < p; j++ {
+			mss -= g[j*m+p] * zs[j]
+			msc -= g[j*m+p] * zc[j]
+			mcc -= g[j*m+p+1] * zc[j]
+		}
+		det := mss*mcc - msc*msc
+		tbar := f.t1 / float64(n)
 		// Weighted sums over the axes of q_k, of the frequency column's own
 		// norm (for the singularity test) and of r_k.
 		var qw, ddw, rw, rrw float64
@@ -898,6 +914,26 @@ func (f *freqFit) fit(t []float64, freq0 float64, maxIter int) (freq float64, it
 			if it == 1 {
 				a[k], b[k] = b0[0], b0[1]
 			}
+			// The border columns' products with the axis, the basis
+			// projected out (slope).
+			ws, wc := xty[p], xty[p+1]
+			if f.slope {
+				for j := 0; j < p; j++ {
+					ws -= zs[j] * xty[j]
+					wc -= zc[j] * xty[j]
+				}
+				if det > 1e-12*mss*mcc {
+					// A, B at the window's mean time from the fit with
+					// both border columns (a linear change of the
+					// fundamental, es τ sin + ec τ cos): the direction the
+					// amplitude changes along, whatever the basis alone
+					// takes of that change (near twice the frequency, a
+					// share turned off that direction).
+					es, ec := (mcc*ws-msc*wc)/det, (mss*wc-msc*ws)/det
+					a[k] = b0[0] - zs[0]*es - zc[0]*ec + ec*tbar
+					b[k] = b0[1] - zs[1]*es - zc[1]*ec + es*tbar
+				}
+			}
 			ak, bk := a[k], b[k]
 			// Border of the normal matrix for the column d = -A τ sin + B τ cos.
 			dd := ak*ak*g[p*m+p] - 2*ak*bk*g[p*m+p+1] + bk*bk*g[(p+1)*m+p+1]
@@ -906,6 +942,25 @@ func (f *freqFit) fit(t []float64, freq0 float64, maxIter int) (freq float64, it
 				uj := -ak*g[j*m+p] + bk*g[j*m+p+1]
 				qk -= uj * (-ak*zs[j] + bk*zc[j])
 				rk -= uj * b0[j]
+			}
+			if f.slope {
+				// The fundamental's change of amplitude, u = τ(A cos +
+				// B sin), eliminated from the step as well (the
+				// demodulation models it): u is not the frequency's
+				// column d, which changes the phase, but near twice the
+				// frequency the two are far from orthogonal over a window
+				// once the basis is projected out, and a walked sensor's
+				// change of amplitude was read as a change of phase (an
+				// exact 50 Hz read 50.0067 ± 0.0001 Hz at 102 Hz sampling,
+				// 0.001-0.005 Hz off at 103-128 Hz; found in review).
+				uu := bk*bk*mss + 2*ak*bk*msc + ak*ak*mcc
+				if uu > 1e-12*(ak*ak+bk*bk)*(mss+mcc) {
+					du := ak*bk*(mcc-mss) + (bk*bk-ak*ak)*msc
+					uy := bk*ws + ak*wc
+					qk -= du * du / uu
+					rk -= du * uy / uu
+					rss -= uy * uy / uu
+				}
 			}
 			lin[k] = [2]float64{b0[0], b0[1]}
 			zk[k] = [2]float64{-ak*zs[0] + bk*zc[0], -ak*zs[1] + bk*zc[1]}
@@ -937,8 +992,13 @@ func (f *freqFit) fit(t []float64, freq0 float64, maxIter int) (freq float64, it
 			den -= c
 		}
 		dw := rw / den
-		// The weights are 1/RSS_k, so Σ q_k/s_k² = (n-p-1) qw.
-		sigmaW := 1 / math.Sqrt(float64(n-p-1)*qw)
+		// The weights are 1/RSS_k, so Σ q_k/s_k² = (n-p-1) qw (n-p-2
+		// with the amplitude's change).
+		dof := n - p - 1
+		if f.slope {
+			dof--
+		}
+		sigmaW := 1 / math.Sqrt(float64(dof)*qw)
 		w += dw
 		for k := range a {
 			a[k], b[k] = lin[k][0]-zk[k][0]*dw, lin[k][1]-zk[k][1]*dw
