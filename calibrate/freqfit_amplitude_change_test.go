@@ -7,15 +7,16 @@ import (
 )
 
 // rampedTone is a noise-free log of three axes sampled at fs Hz for dur s
-// from t = 0: on each axis a tone of f Hz whose amplitude changes linearly
-// with time at its own rate, a phase of its own, and a steady field with a
-// slow drift (simulated; the numbers are invented). Its model, a linear
-// change of the fundamental's amplitude at one steady frequency, is the
-// one the slope model of the frequency-estimating fit takes, so that fit
-// must return f itself in every window.
+// from t = 0: on each axis a tone of f Hz whose amplitude changes with
+// time as a parabola of its own, a phase of its own, and a steady field
+// with a slow drift (simulated; the numbers are invented). Its model, a
+// linear and quadratic change of the fundamental's amplitude at one
+// steady frequency, is the one the slope model of the frequency-estimating
+// fit takes, so that fit must return f itself in every window.
 func rampedTone(fs, dur, f float64) *Columns {
 	amp0 := [3]float64{400, 900, 250}      // nT peak at t = 0
 	rate := [3]float64{60, -45, 110}       // nT/s
+	curve := [3]float64{8, 5, -10}         // nT/s²
 	phase := [3]float64{0.3, 1.4, -2}      // rad
 	earth := [3]float64{150, 19200, -45e3} // nT
 	var c Columns
@@ -23,7 +24,7 @@ func rampedTone(fs, dur, f float64) *Columns {
 		t := float64(i) / fs
 		c.Time = append(c.Time, t)
 		for k := range 3 {
-			amp := amp0[k] + rate[k]*t
+			amp := amp0[k] + (rate[k]+curve[k]*t)*t
 			c.B[k] = append(c.B[k], earth[k]+0.4*t+amp*math.Cos(2*math.Pi*f*t+phase[k]))
 		}
 	}
@@ -35,14 +36,15 @@ func rampedTone(fs, dur, f float64) *Columns {
 // alternating in sign from sample to sample, and the columns of a change
 // of the tone's amplitude, τ(A cos + B sin), are then far from orthogonal
 // to the frequency's column τ(-A sin + B cos) once the basis is projected
-// out. Before, the frequency-estimating fit did not take the amplitude's
+// out, and so are those of its quadratic change, τ²(A cos + B sin).
+// Before, the frequency-estimating fit did not take the amplitude's
 // change, and a tone of steady frequency whose amplitude changed (a walked
 // sensor's) read 1e-3 to 1e-2 Hz off in each window at 102-128 Hz
 // sampling (found in review), so that locate could not act on offsets
-// below 0.01 Hz there. With the fundamental's change of amplitude
-// eliminated from each step, every window of a tone whose amplitude
-// changes linearly must return the tone's frequency (simulated truth) to
-// rounding, 1e-7 Hz, at the rates named and in the windows
+// below 0.01 Hz there. With the fundamental's change of amplitude, linear
+// and quadratic, eliminated from each step, every window of a tone whose
+// amplitude changes so must return the tone's frequency (simulated truth)
+// to rounding, 1e-7 Hz, at the rates named and in the windows
 // ConditionedWindow lengthens them to; also with the tone 0.004 Hz off the
 // frequency given, so that the amplitude's column does not take a true
 // offset.

@@ -88,14 +88,16 @@ func refLinear(t *testing.T, tt, y []float64, w float64, harmonics []int, drift,
 
 // refSlopeAxis is refLinear for the slope model (DemodSettings with
 // ConstantAmplitude false): the design X of refDesign with the harmonics'
-// slope columns, and the fundamental's change of amplitude
-// u = τ(A cos ωτ + B sin ωτ) as one more column, where A, B are the
-// fundamental's coefficients at the mean of τ in the fit of y less its
-// first value on X and both τ cos ωτ and τ sin ωτ (a linear change of the
+// slope columns, and the fundamental's change of amplitude, linear and
+// quadratic, u1 = τ(A cos ωτ + B sin ωτ) and u2 = τ²(A cos ωτ + B sin ωτ)
+// as two more columns, where A, B are the fundamental's coefficients at
+// the mean of τ in the fit of y less its first value on X and τ cos ωτ,
+// τ sin ωτ, τ² cos ωτ, τ² sin ωτ (a linear and quadratic change of the
 // fundamental's amplitude and phase; gonum QR). It returns the design
-// [X u], the residual sum of squares of the fit on it (gonum QR) and the
-// frequency column d = τ(-A sin ωτ + B cos ωτ) at those A, B: the phase's
-// change, which the frequency takes, while u takes the amplitude's.
+// [X u1 u2], the residual sum of squares of the fit on it (gonum QR) and
+// the frequency column d = τ(-A sin ωτ + B cos ωτ) at those A, B: the
+// phase's change, which the frequency takes, while u1 and u2 take the
+// amplitude's.
 func refSlopeAxis(t *testing.T, tt, y []float64, w float64, harmonics []int, drift bool) (xu *mat.Dense, rss float64, d []float64) {
 	t.Helper()
 	n := len(tt)
@@ -108,27 +110,30 @@ func refSlopeAxis(t *testing.T, tt, y []float64, w float64, harmonics []int, dri
 		tm += tt[i] - tt[0]
 	}
 	tm /= float64(n)
-	full := mat.NewDense(n, p+2, nil)
+	full := mat.NewDense(n, p+4, nil)
 	full.Slice(0, n, 0, p).(*mat.Dense).Copy(X)
 	for i, ti := range tt {
 		tau := ti - tt[0]
 		s, c := math.Sincos(w * tau)
 		full.Set(i, p, tau*c)
 		full.Set(i, p+1, tau*s)
+		full.Set(i, p+2, tau*tau*c)
+		full.Set(i, p+3, tau*tau*s)
 	}
 	var beta mat.VecDense
 	if err := beta.SolveVec(full, yv); err != nil {
 		t.Fatal(err)
 	}
-	a := beta.AtVec(0) + beta.AtVec(p)*tm
-	b := beta.AtVec(1) + beta.AtVec(p+1)*tm
-	xu = mat.NewDense(n, p+1, nil)
+	a := beta.AtVec(0) + beta.AtVec(p)*tm + beta.AtVec(p+2)*tm*tm
+	b := beta.AtVec(1) + beta.AtVec(p+1)*tm + beta.AtVec(p+3)*tm*tm
+	xu = mat.NewDense(n, p+2, nil)
 	xu.Slice(0, n, 0, p).(*mat.Dense).Copy(X)
 	d = make([]float64, n)
 	for i, ti := range tt {
 		tau := ti - tt[0]
 		s, c := math.Sincos(w * tau)
 		xu.Set(i, p, tau*(a*c+b*s))
+		xu.Set(i, p+1, tau*tau*(a*c+b*s))
 		d[i] = tau * (-a*s + b*c)
 	}
 	var gamma, pred mat.VecDense
@@ -165,7 +170,7 @@ func refJointFit(t *testing.T, tt []float64, ys [][]float64, freq0 float64, harm
 		p++
 	}
 	if hslope {
-		p += 2*len(harmonics) + 1
+		p += 2*len(harmonics) + 2
 	}
 	// axis returns an axis's design at w (its linear parameters), the
 	// residual sum of squares of its fit and the frequency column.
@@ -288,8 +293,8 @@ func TestDemodulateEstimateFreqMatchesReference(t *testing.T) {
 	// The fast per-window joint fit must land where the dense reference
 	// does (refJointFit: the IEEE Std 1057 four-parameter algorithm on the
 	// three axes stacked and weighted, gonum QR; in the slope model with
-	// the fundamental's change of amplitude among each axis's linear
-	// parameters, refSlopeAxis), with the same sigma, and without
+	// the fundamental's linear and quadratic change of amplitude among each
+	// axis's linear parameters, refSlopeAxis), with the same sigma, and without
 	// harmonics or slope at the maximum of the profile likelihood
 	// (refProfileFreq, bisection on its derivative; in the slope model
 	// the amplitude's column moves with ω, so the frequency is not that
