@@ -86,6 +86,68 @@ func refLinear(t *testing.T, tt, y []float64, w float64, harmonics []int, drift,
 	return r, rss, d
 }
 
+// refSlopeAxis is refLinear for the slope model (DemodSettings with
+// ConstantAmplitude false): the design X of refDesign with the harmonics'
+// slope columns, and the fundamental's change of amplitude, linear and
+// quadratic, u1 = τ(A cos ωτ + B sin ωτ) and u2 = τ²(A cos ωτ + B sin ωτ)
+// as two more columns, where A, B are the fundamental's coefficients at
+// the mean of τ in the fit of y less its first value on X and τ cos ωτ,
+// τ sin ωτ, τ² cos ωτ, τ² sin ωτ (a linear and quadratic change of the
+// fundamental's amplitude and phase; gonum QR). It returns the design
+// [X u1 u2], the residual sum of squares of the fit on it (gonum QR) and
+// the frequency column d = τ(-A sin ωτ + B cos ωτ) at those A, B: the
+// phase's change, which the frequency takes, while u1 and u2 take the
+// amplitude's.
+func refSlopeAxis(t *testing.T, tt, y []float64, w float64, harmonics []int, drift bool) (xu *mat.Dense, rss float64, d []float64) {
+	t.Helper()
+	n := len(tt)
+	X := refDesign(tt, w, harmonics, drift, true)
+	_, p := X.Dims()
+	yv := mat.NewVecDense(n, nil)
+	var tm float64
+	for i := range y {
+		yv.SetVec(i, y[i]-y[0])
+		tm += tt[i] - tt[0]
+	}
+	tm /= float64(n)
+	full := mat.NewDense(n, p+4, nil)
+	full.Slice(0, n, 0, p).(*mat.Dense).Copy(X)
+	for i, ti := range tt {
+		tau := ti - tt[0]
+		s, c := math.Sincos(w * tau)
+		full.Set(i, p, tau*c)
+		full.Set(i, p+1, tau*s)
+		full.Set(i, p+2, tau*tau*c)
+		full.Set(i, p+3, tau*tau*s)
+	}
+	var beta mat.VecDense
+	if err := beta.SolveVec(full, yv); err != nil {
+		t.Fatal(err)
+	}
+	a := beta.AtVec(0) + beta.AtVec(p)*tm + beta.AtVec(p+2)*tm*tm
+	b := beta.AtVec(1) + beta.AtVec(p+1)*tm + beta.AtVec(p+3)*tm*tm
+	xu = mat.NewDense(n, p+2, nil)
+	xu.Slice(0, n, 0, p).(*mat.Dense).Copy(X)
+	d = make([]float64, n)
+	for i, ti := range tt {
+		tau := ti - tt[0]
+		s, c := math.Sincos(w * tau)
+		xu.Set(i, p, tau*(a*c+b*s))
+		xu.Set(i, p+1, tau*tau*(a*c+b*s))
+		d[i] = tau * (-a*s + b*c)
+	}
+	var gamma, pred mat.VecDense
+	if err := gamma.SolveVec(xu, yv); err != nil {
+		t.Fatal(err)
+	}
+	pred.MulVec(xu, &gamma)
+	for i := 0; i < n; i++ {
+		r := yv.AtVec(i) - pred.AtVec(i)
+		rss += r * r
+	}
+	return xu, rss, d
+}
+
 // refJointFit is a dense reference for the joint four-parameter fit of
 // several axes sharing one frequency, after the four-parameter algorithm
 // of IEEE Std 1057 section 4.1.3.3 extended to weighted axes: each
@@ -94,10 +156,12 @@ func refLinear(t *testing.T, tt, y []float64, w float64, harmonics []int, drift,
 // divided by the root of its residual sum of squares at the current
 // frequency, and solves it by gonum's QR (mat.QR on the whole stacked
 // design, 3n rows), until the step moves the phase across the window by
-// less than 1e-13 rad. An axis with no variation at all is left out. It
+// less than 1e-13 rad. An axis with no variation at all is left out. With
+// hslope (the slope model) each axis's linear parameters are those of
+// refSlopeAxis, the fundamental's change of amplitude among them. It
 // returns the frequency, Hz, and its one-sigma, Hz, from the last diagonal
 // entry of R (1/R² is the frequency's variance with rows weighted by
-// 1/s_k, s_k² = RSS_k/(n-p-1)).
+// 1/s_k, s_k² = RSS_k/(n-p-1), p the linear parameters of an axis).
 func refJointFit(t *testing.T, tt []float64, ys [][]float64, freq0 float64, harmonics []int, drift, hslope bool) (freq, sigma float64) {
 	t.Helper()
 	n := len(tt)
@@ -106,7 +170,16 @@ func refJointFit(t *testing.T, tt []float64, ys [][]float64, freq0 float64, harm
 		p++
 	}
 	if hslope {
-		p += 2 * len(harmonics)
+		p += 2*len(harmonics) + 2
+	}
+	// axis returns an axis's design at w (its linear parameters), the
+	// residual sum of squares of its fit and the frequency column.
+	axis := func(y []float64, w float64) (*mat.Dense, float64, []float64) {
+		if hslope {
+			return refSlopeAxis(t, tt, y, w, harmonics, drift)
+		}
+		_, rss, d := refLinear(t, tt, y, w, harmonics, drift, false)
+		return refDesign(tt, w, harmonics, drift, false), rss, d
 	}
 	var axes [][]float64
 	for _, y := range ys {
@@ -123,9 +196,8 @@ func refJointFit(t *testing.T, tt []float64, ys [][]float64, freq0 float64, harm
 	for it := 0; it < 100; it++ {
 		J := mat.NewDense(m*n, m*p+1, nil)
 		rhs := mat.NewVecDense(m*n, nil)
-		X := refDesign(tt, w, harmonics, drift, hslope)
 		for k, y := range axes {
-			_, rss, d := refLinear(t, tt, y, w, harmonics, drift, hslope)
+			X, rss, d := axis(y, w)
 			s := 1 / math.Sqrt(rss)
 			for i := 0; i < n; i++ {
 				for j := 0; j < p; j++ {
@@ -149,9 +221,8 @@ func refJointFit(t *testing.T, tt []float64, ys [][]float64, freq0 float64, harm
 	}
 	// The covariance at the converged frequency, rows weighted by 1/s_k.
 	J := mat.NewDense(m*n, m*p+1, nil)
-	X := refDesign(tt, w, harmonics, drift, hslope)
 	for k, y := range axes {
-		_, rss, d := refLinear(t, tt, y, w, harmonics, drift, hslope)
+		X, rss, d := axis(y, w)
 		s := 1 / math.Sqrt(rss/float64(n-p-1))
 		for i := 0; i < n; i++ {
 			for j := 0; j < p; j++ {
@@ -221,10 +292,14 @@ func refProfileFreq(t *testing.T, tt []float64, ys [][]float64, freq0 float64, d
 func TestDemodulateEstimateFreqMatchesReference(t *testing.T) {
 	// The fast per-window joint fit must land where the dense reference
 	// does (refJointFit: the IEEE Std 1057 four-parameter algorithm on the
-	// three axes stacked and weighted, gonum QR), with the same sigma, and
-	// without harmonics at the maximum of the profile likelihood
-	// (refProfileFreq, bisection on its derivative); the window's phasors must be the
-	// three-parameter fits (FitSine, QR) at that frequency.
+	// three axes stacked and weighted, gonum QR; in the slope model with
+	// the fundamental's linear and quadratic change of amplitude among each
+	// axis's linear parameters, refSlopeAxis), with the same sigma, and without
+	// harmonics or slope at the maximum of the profile likelihood
+	// (refProfileFreq, bisection on its derivative; in the slope model
+	// the amplitude's column moves with ω, so the frequency is not that
+	// maximum's); the window's phasors must be the three-parameter fits
+	// (FitSine, QR) at that frequency.
 	const (
 		// On noise-free data all converge to the tone; what is left is
 		// rounding and the sigma-tied stop, far inside the brief's 1e-9.
@@ -313,7 +388,7 @@ func TestDemodulateEstimateFreqMatchesReference(t *testing.T) {
 						if d := math.Abs(w.FreqSigma-sigma) / sigma; d > tol {
 							t.Errorf("window %d: sigma %.9g Hz, reference %.9g Hz (relative %.2g)", i, w.FreqSigma, sigma, d)
 						}
-						if len(set.Harmonics) == 0 {
+						if len(set.Harmonics) == 0 && constant {
 							prof := refProfileFreq(t, tt, ys[:map[bool]int{false: 3, true: 2}[tc.dead]], set.Freq, set.Drift)
 							if d := math.Abs(w.Freq-prof) / prof; d > tolFreq {
 								t.Errorf("window %d: %.12f Hz, profile likelihood's maximum %.12f Hz (relative %.2g)", i, w.Freq, prof, d)

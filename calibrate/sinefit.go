@@ -559,25 +559,31 @@ type freqFit struct {
 	// cols and are filled by load.
 	nuisance []float64
 	// slope gives each harmonic and each nuisance frequency its slope
-	// columns (DemodSettings.Harmonics and Nuisance); the fundamental
-	// takes none, since with the frequency fitted the two are not told
-	// apart (the frequency is the slope of the phase). The harmonics'
-	// slope columns follow the basis columns (and τ), before the
-	// nuisance's.
+	// columns (DemodSettings.Harmonics and Nuisance), and the fundamental
+	// the linear and quadratic change of its amplitude, τ(A cos ωτ +
+	// B sin ωτ) and τ²(A cos ωτ + B sin ωτ), two columns per axis
+	// eliminated in fit from the border (nb = 4), not the change of its
+	// phase: the frequency is the slope of the phase. The harmonics' slope
+	// columns follow the basis columns (and τ), before the nuisance's.
 	slope  bool
+	nb     int          // border columns after the basis: τ sin ωτ, τ cos ωτ, and with slope τ² sin ωτ, τ² cos ωτ
 	p      int          // linear parameters: 3, 2 per harmonic, 1 for drift, 2 per harmonic with slope, then the nuisance columns
 	n      int          // samples in the buffers
-	cols   [][]float64  // p basis columns, then τ sin ωτ and τ cos ωτ
+	cols   [][]float64  // p basis columns, then the nb border columns
 	ys     [3][]float64 // the window's series less their first value
 	yt     [3][]float64 // ys times τ (three-parameter case)
 	y1     [3]float64   // Σ ys per axis
 	times  windowTimes
 	t1, t2 float64      // Σ τ and Σ τ²
-	gram   []float64    // (p+2)×(p+2) normal matrix of cols, row-major
+	t3, t4 float64      // Σ τ³ and Σ τ⁴ (slope)
+	gram   []float64    // (p+nb)×(p+nb) normal matrix of cols, row-major
 	xty    [3][]float64 // colsᵀ y per axis
 	yy     [3]float64   // yᵀy per axis
 	l      []float64    // p×p Cholesky factor of the basis block
 	zs, zc []float64    // the basis block's inverse times the columns τ sin ωτ and τ cos ωτ
+	zb     [4][]float64 // the basis block's inverse times each border column (zb[0] = zs, zb[1] = zc)
+	mb, lb []float64    // slope: the border's normal block with the basis projected out, nb×nb, and its Cholesky factor
+	wb, eb []float64    // slope: scratch, nb
 	b0     []float64    // scratch, p
 }
 
@@ -591,8 +597,12 @@ func newFreqFit(harmonics []int, drift bool, nuisance []float64, slope bool) *fr
 	} else {
 		p += 2 * len(nuisance)
 	}
-	m := p + 2
-	f := &freqFit{harmonics: harmonics, drift: drift, nuisance: nuisance, slope: slope, p: p,
+	nb := 2
+	if slope {
+		nb = 4
+	}
+	m := p + nb
+	f := &freqFit{harmonics: harmonics, drift: drift, nuisance: nuisance, slope: slope, nb: nb, p: p,
 		cols: make([][]float64, m),
 		gram: make([]float64, m*m),
 		l:    make([]float64, p*p),
@@ -601,6 +611,12 @@ func newFreqFit(harmonics []int, drift bool, nuisance []float64, slope bool) *fr
 	for k := range f.xty {
 		f.xty[k] = make([]float64, m)
 	}
+	f.zb[0], f.zb[1] = f.zs, f.zc
+	for i := 2; i < nb; i++ {
+		f.zb[i] = make([]float64, p)
+	}
+	f.mb, f.lb = make([]float64, nb*nb), make([]float64, nb*nb)
+	f.wb, f.eb = make([]float64, nb), make([]float64, nb)
 	return f
 }
 
@@ -640,10 +656,12 @@ func (f *freqFit) load(t []float64, y [3][]float64, grid *nuisanceGrid) int {
 			fillNuisance(cols, tau, f.nuisance, f.slope)
 		}
 	}
-	f.t1, f.t2 = 0, 0
+	f.t1, f.t2, f.t3, f.t4 = 0, 0, 0, 0
 	for _, v := range tau {
 		f.t1 += v
 		f.t2 += v * v
+		f.t3 += v * v * v
+		f.t4 += v * v * v * v
 	}
 	bad := -1
 	for k := range f.ys {
@@ -665,7 +683,7 @@ func (f *freqFit) load(t []float64, y [3][]float64, grid *nuisanceGrid) int {
 	// The nuisance columns do not depend on ω: their block of the normal
 	// matrix and their products with the series are formed once here.
 	if q := f.nuisanceStart(); q < f.p {
-		m := f.p + 2
+		m := f.p + f.nb
 		for i := q; i < f.p; i++ {
 			for j := i; j < f.p; j++ {
 				var v float64
@@ -701,7 +719,7 @@ func (f *freqFit) pass(w float64, axes ...int) error {
 		return f.pass3(w, axes)
 	}
 	n, p := f.n, f.p
-	m := p + 2
+	m := p + f.nb
 	cols := f.cols
 	for j := range cols {
 		cols[j] = cols[j][:n]
@@ -718,6 +736,12 @@ func (f *freqFit) pass(w float64, axes ...int) error {
 	cs, sn := cols[0], cols[1]
 	for k, tau := range f.times.tau {
 		ts[k], tc[k] = tau*sn[k], tau*cs[k]
+	}
+	if f.nb == 4 {
+		t2s, t2c := cols[p+2], cols[p+3]
+		for k, tau := range f.times.tau {
+			t2s[k], t2c[k] = tau*ts[k], tau*tc[k]
+		}
 	}
 	// The entries between nuisance columns [q, p) were formed by load.
 	q := f.nuisanceStart()
@@ -792,7 +816,8 @@ func (f *freqFit) pass3(w float64, axes []int) error {
 	}
 	fn := float64(n)
 	g := f.gram
-	sym := func(i, j int, v float64) { g[i*5+j], g[j*5+i] = v, v }
+	m := 3 + f.nb
+	sym := func(i, j int, v float64) { g[i*m+j], g[j*m+i] = v, v }
 	sym(0, 0, c2)
 	sym(0, 1, sc)
 	sym(0, 2, c1)
@@ -821,7 +846,58 @@ func (f *freqFit) pass3(w float64, axes []int) error {
 		ys, yt := f.ys[k][:n], f.yt[k][:n]
 		x[0], x[1], x[2], x[3], x[4] = dot(ys, cs), dot(ys, sn), f.y1[k], dot(yt, sn), dot(yt, cs)
 	}
-	return cholesky(f.l, g, 3, 5)
+	if f.nb == 4 {
+		f.sums3curve(axes, cs, sn)
+	}
+	return cholesky(f.l, g, 3, m)
+}
+
+// sums3curve fills the products of the three-parameter pass (pass3) with
+// the border columns τ² sin ωτ and τ² cos ωτ (slope), from the columns
+// cs, sn, for the axes listed: with c² + s² = 1 the sums Στ²s, Στ²c,
+// Στ³c², Στ³sc, Στ⁴c², Στ⁴sc and the window's Στ², Στ³, Στ⁴ give their
+// normal entries.
+func (f *freqFit) sums3curve(axes []int, cs, sn []float64) {
+	tau := f.times.tau[:len(cs)]
+	var t2s, t2c, t3c2, t3sc, t4c2, t4sc float64
+	for i, c := range cs {
+		s, ta := sn[i], tau[i]
+		t2 := ta * ta
+		t2c += t2 * c
+		t2s += t2 * s
+		t3 := t2 * ta
+		t3c2 += t3 * c * c
+		t3sc += t3 * s * c
+		t4c2 += t3 * ta * c * c
+		t4sc += t3 * ta * s * c
+	}
+	g := f.gram
+	const m = 7
+	sym := func(i, j int, v float64) { g[i*m+j], g[j*m+i] = v, v }
+	t2sc, t2c2 := g[3*m+4], g[4*m+4] // Στ²sc, Στ²c²
+	sym(0, 5, t2sc)
+	sym(0, 6, t2c2)
+	sym(1, 5, f.t2-t2c2)
+	sym(1, 6, t2sc)
+	sym(2, 5, t2s)
+	sym(2, 6, t2c)
+	sym(3, 5, f.t3-t3c2)
+	sym(3, 6, t3sc)
+	sym(4, 5, t3sc)
+	sym(4, 6, t3c2)
+	sym(5, 5, f.t4-t4c2)
+	sym(5, 6, t4sc)
+	sym(6, 6, t4c2)
+	for _, k := range axes {
+		yt := f.yt[k][:len(cs)]
+		var ys, yc float64
+		for i, c := range cs {
+			v := yt[i] * tau[i]
+			ys += v * sn[i]
+			yc += v * c
+		}
+		f.xty[k][5], f.xty[k][6] = ys, yc
+	}
 }
 
 // sums3two fills the products of the three-parameter pass (pass3) with
@@ -859,19 +935,24 @@ func (f *freqFit) fit(t []float64, freq0 float64, maxIter int) (freq float64, it
 	if n != f.n {
 		panic("calibrate: freqFit: times differ in length from the loaded series")
 	}
-	if n <= p+1 {
-		return 0, 0, q, fmt.Errorf("calibrate: four-parameter fit: %d samples for %d parameters", n, p+1)
+	np := p + 1 // the parameters per axis: the basis and the frequency
+	if f.slope {
+		np += 2 // and the amplitude's change, linear and quadratic
+	}
+	if n <= np {
+		return 0, 0, q, fmt.Errorf("calibrate: four-parameter fit: %d samples for %d parameters", n, np)
 	}
 	span := t[n-1] - t[0]
 	if !(span > 0) {
 		return 0, 0, q, errors.New("calibrate: four-parameter fit: times do not increase")
 	}
-	m := p + 2
+	m := p + f.nb
 	w := 2 * math.Pi * freq0
 	g := f.gram
 	zs, zc, b0 := f.zs, f.zc, f.b0
 	// A_k, B_k of the frequency column: the three-parameter fit's at freq0
-	// on the first pass, then each step's.
+	// on the first pass, then each step's; with slope, each pass's fit with
+	// the border columns (below).
 	var a, b [3]float64
 	for it := 1; it <= maxIter; it++ {
 		iters = it
@@ -883,6 +964,33 @@ func (f *freqFit) fit(t []float64, freq0 float64, maxIter int) (freq float64, it
 		}
 		cholSolve(f.l, zs)
 		cholSolve(f.l, zc)
+		// With slope, the border also holds τ² sin ωτ, τ² cos ωτ; the
+		// border columns with the basis projected out have the normal
+		// block mb (nb×nb), factored into lb, for the fundamental's change
+		// of amplitude (below).
+		nb := f.nb
+		bordOK := false
+		if f.slope {
+			for i := 2; i < nb; i++ {
+				zi := f.zb[i]
+				for j := 0; j < p; j++ {
+					zi[j] = g[j*m+p+i]
+				}
+				cholSolve(f.l, zi)
+			}
+			for i := 0; i < nb; i++ {
+				for j := i; j < nb; j++ {
+					v := g[(p+i)*m+p+j]
+					zj := f.zb[j]
+					for l := 0; l < p; l++ {
+						v -= g[l*m+p+i] * zj[l]
+					}
+					f.mb[i*nb+j], f.mb[j*nb+i] = v, v
+				}
+			}
+			bordOK = cholesky(f.lb, f.mb, nb, nb) == nil
+		}
+		tbar := f.t1 / float64(n)
 		// Weighted sums over the axes of q_k, of the frequency column's own
 		// norm (for the singularity test) and of r_k.
 		var qw, ddw, rw, rrw float64
@@ -898,6 +1006,34 @@ func (f *freqFit) fit(t []float64, freq0 float64, maxIter int) (freq float64, it
 			if it == 1 {
 				a[k], b[k] = b0[0], b0[1]
 			}
+			// The border columns' products with the axis, the basis
+			// projected out (slope).
+			wb := f.wb
+			if bordOK {
+				for i := 0; i < nb; i++ {
+					v := xty[p+i]
+					zi := f.zb[i]
+					for j := 0; j < p; j++ {
+						v -= zi[j] * xty[j]
+					}
+					wb[i] = v
+				}
+				// A, B at the window's mean time from the fit with all
+				// the border columns (a linear and quadratic change of
+				// the fundamental): the direction its amplitude changes
+				// along, whatever the basis alone takes of that change
+				// (near twice the frequency, a share turned off that
+				// direction).
+				e := f.eb
+				copy(e, wb)
+				cholSolve(f.lb, e)
+				ak, bk := b0[0]+tbar*(e[1]+tbar*e[3]), b0[1]+tbar*(e[0]+tbar*e[2])
+				for i := 0; i < nb; i++ {
+					ak -= f.zb[i][0] * e[i]
+					bk -= f.zb[i][1] * e[i]
+				}
+				a[k], b[k] = ak, bk
+			}
 			ak, bk := a[k], b[k]
 			// Border of the normal matrix for the column d = -A τ sin + B τ cos.
 			dd := ak*ak*g[p*m+p] - 2*ak*bk*g[p*m+p+1] + bk*bk*g[(p+1)*m+p+1]
@@ -906,6 +1042,46 @@ func (f *freqFit) fit(t []float64, freq0 float64, maxIter int) (freq float64, it
 				uj := -ak*g[j*m+p] + bk*g[j*m+p+1]
 				qk -= uj * (-ak*zs[j] + bk*zc[j])
 				rk -= uj * b0[j]
+			}
+			if bordOK {
+				// The fundamental's change of amplitude, linear and
+				// quadratic, u1 = τ(A cos + B sin) and u2 = τ²(A cos +
+				// B sin), eliminated from the step as well (the
+				// demodulation models both): they are not the frequency's
+				// column d, which changes the phase, but near twice the
+				// frequency they are far from orthogonal to it over a
+				// window once the basis is projected out, and a walked
+				// sensor's change of amplitude was read as a change of
+				// phase (an exact 50 Hz read 50.0067 ± 0.0001 Hz at 102 Hz
+				// sampling, 0.001-0.005 Hz off at 103-128 Hz; found in
+				// review). In the border's coordinates (τ sin, τ cos,
+				// τ² sin, τ² cos) d = (-A, B, 0, 0), u1 = (B, A, 0, 0),
+				// u2 = (0, 0, B, A).
+				mb := f.mb
+				form := func(x, y [4]float64) float64 {
+					var v float64
+					for i := 0; i < nb; i++ {
+						for j := 0; j < nb; j++ {
+							v += x[i] * mb[i*nb+j] * y[j]
+						}
+					}
+					return v
+				}
+				d := [4]float64{-ak, bk}
+				u1 := [4]float64{bk, ak}
+				u2 := [4]float64{2: bk, 3: ak}
+				dot4 := func(x [4]float64) float64 { return x[0]*wb[0] + x[1]*wb[1] + x[2]*wb[2] + x[3]*wb[3] }
+				g11, g12, g22 := form(u1, u1), form(u1, u2), form(u2, u2)
+				du1, du2 := form(d, u1), form(d, u2)
+				y1, y2 := dot4(u1), dot4(u2)
+				if det := g11*g22 - g12*g12; det > 1e-12*g11*g22 {
+					// G⁻¹ applied to (du1, du2) and to (y1, y2).
+					x1, x2 := (g22*du1-g12*du2)/det, (g11*du2-g12*du1)/det
+					v1, v2 := (g22*y1-g12*y2)/det, (g11*y2-g12*y1)/det
+					qk -= du1*x1 + du2*x2
+					rk -= du1*v1 + du2*v2
+					rss -= y1*v1 + y2*v2
+				}
 			}
 			lin[k] = [2]float64{b0[0], b0[1]}
 			zk[k] = [2]float64{-ak*zs[0] + bk*zc[0], -ak*zs[1] + bk*zc[1]}
@@ -937,8 +1113,10 @@ func (f *freqFit) fit(t []float64, freq0 float64, maxIter int) (freq float64, it
 			den -= c
 		}
 		dw := rw / den
-		// The weights are 1/RSS_k, so Σ q_k/s_k² = (n-p-1) qw.
-		sigmaW := 1 / math.Sqrt(float64(n-p-1)*qw)
+		// The weights are 1/RSS_k, so Σ q_k/s_k² = (n-p-1) qw (n-p-3
+		// with the amplitude's change).
+		dof := n - np
+		sigmaW := 1 / math.Sqrt(float64(dof)*qw)
 		w += dw
 		for k := range a {
 			a[k], b[k] = lin[k][0]-zk[k][0]*dw, lin[k][1]-zk[k][1]*dw

@@ -114,7 +114,9 @@ type freqEstimate struct {
 // windows seem to run off the frequency by hundredths to tenths of a
 // hertz, hundreds of their own sigmas, with the sign of the walking
 // direction, so that the cut may keep a biased few (9 of 160 windows of a
-// three-phase circuit at 50.05 Hz, 0.004 Hz off); the groups demodulated
+// three-phase circuit at 50.05 Hz, 0.004 Hz off; 46 to 52, 0.003 Hz off,
+// since the frequency-estimating fit takes the change of amplitude apart
+// from the phase); the groups demodulated
 // at such an estimate then search for a phase ramp with one line fewer as
 // well (fitRamp), which takes up the rest.
 //
@@ -529,27 +531,17 @@ func longerMultiple(w, win float64) bool {
 	return w > 1.5*win
 }
 
-// nyquistCheckBeats is the number of beats 1/|fs - 2f| a window must span
-// for the frequency check to act on a small offset (nearNyquist).
+// nyquistCheckBeats is the number of beats 1/|fs - 2f| below which the
+// default window is checked for its conditioning (conditioned). The
+// frequency check itself acts near twice the frequency as anywhere else:
+// the frequency-estimating fit takes the linear and quadratic change of
+// the fundamental's amplitude (calibrate's slope model), which sampled
+// there had leaked a walked sensor's change of amplitude into each
+// window's frequency (single 50 Hz cables at exact frequency, walked at
+// 1 m/s, read 50.0067 ± 0.0001 Hz at 102 Hz in 1 s windows, 0.001-0.005 Hz
+// off at 103-128 Hz), and the check had acted there only beyond
+// freqCheckUntrustedHz (found in review).
 const nyquistCheckBeats = 4
-
-// nearNyquist reports whether the log's sample rate is so close to twice
-// freq that windows of win seconds span fewer than nyquistCheckBeats beats
-// 1/|fs - 2f|. Sampled so, the signal is an envelope alternating in sign
-// from sample to sample, and the frequency-estimating fit, which takes no
-// change of the fundamental's amplitude (its frequency would be lost in
-// it), reads part of a walked sensor's change of amplitude as a change of
-// phase, whatever the window's length: single 50 Hz cables at exact
-// frequency, walked at 1 m/s, read 50.0067 ± 0.0001 Hz at 102 Hz in 1 s
-// windows, 50.0022 ± 0.0001 at 103 Hz and 59.9969 ± 0.0002 at 128 Hz in
-// windows lengthened to span 1.7-2.7 beats, and were demodulated there,
-// with a false "frequency off, currents would read low" warning (found
-// in review). The check then acts only beyond freqCheckUntrustedHz and
-// leaves a smaller offset to the groups' phase ramps; 50 Hz at 107-110 Hz
-// in 0.4 s windows and 115 Hz and above in 0.2 s are clean.
-func (pl demodPlan) nearNyquist(freq, win float64) bool {
-	return pl.fs > 0 && math.Abs(pl.fs-2*freq)*win < nyquistCheckBeats
-}
 
 // nearestMains returns the odd harmonic h of the mains frequency m (of
 // pl.mains, below 0.45 of the sample rate) nearest f; false with no mains.
@@ -760,22 +752,12 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 	}
 	est, ok := estimateWindowFreq(fit.Windows, win)
 	if !ok {
-		why := uncheckedWarning(fit.Windows, o.freq)
-		if pl.nearNyquist(o.freq, win) {
-			why = fmt.Sprintf("the AC frequency could not be checked: sampled at %.5g Hz, close to twice %g Hz, the windows' fitted frequencies also take the walk's change of the field's amplitude and disagree beyond their sigmas; the results assume the field runs at exactly %g Hz (the groups' phase ramps take a small offset)", pl.fs, o.freq, o.freq)
-		}
-		return res, win, append(res.Warnings, why), nil, nil
+		return res, win, append(res.Warnings, uncheckedWarning(fit.Windows, o.freq)), nil, nil
 	}
 	off := est.freq - o.freq
 	span := longestGroupSpan(res.Windows, win)
 	turn := 360 * math.Abs(off) * span
 	if math.Abs(off) <= freqCheckSigmas*est.sigma || turn <= freqCheckDegrees {
-		return res, win, res.Warnings, wanderHints(fit.Windows, o.freq, win), nil
-	}
-	if pl.nearNyquist(o.freq, win) && math.Abs(off) <= freqCheckUntrustedHz {
-		// Sampled just above twice the frequency, the windows' frequencies
-		// carry the walk's change of amplitude (below): a small offset is
-		// left to the groups' phase ramps, which take a real one.
 		return res, win, res.Warnings, wanderHints(fit.Windows, o.freq, win), nil
 	}
 	dec := freqDecimals(est.sigma)
