@@ -386,7 +386,7 @@ const maxReferenceScale = 0.1
 
 // --reference, whose scale is the sensor's own; printCalibration then
 // labels the field magnitude "radius", not "reference".
-const noReferenceNote = "no --reference:"
+const noReferenceNote = calibrate.NoReferenceNote
 
 // spinNotes records in cal what the ellipsoid fit left out (with the
 // times of those readings, or their places in a log without time, named

@@ -680,6 +680,9 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		// the name (loggroups.go).
 		sv.alerts = append(sv.alerts, nameReusedGroups(logs, read)...)
 	}
+	var turns offsetTurn
+	var swings swing
+	var field surveyField
 	for k, path := range logs {
 		s := read[k]
 		read[k] = nil // the groups hold the readings from here on
@@ -713,10 +716,27 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 				return nil, fmt.Errorf("%s: %w", path, err)
 			}
 		}
+		// A DC field log's orientation checks (sensorturn.go): the
+		// rotations the attitude applies, for an offset turning with the
+		// sensor; the field turning within the groups.
+		checkTurns := !sv.ac && !o.coil.on()
+		var rot [][3][3]float64
 		if s.Frame == ingest.FrameSensor {
+			if checkTurns {
+				rot = attitudeTurns(s)
+			}
 			if err := calibrate.Tilt(s, nil); err != nil {
 				return nil, err
 			}
+			if rot != nil {
+				turns.add(path, s, rot)
+			}
+		}
+		if checkTurns {
+			swings.add(path, s)
+		}
+		if base != nil && !o.coil.on() {
+			field.add(s)
 		}
 		if o.groupBy == "" {
 			if w := groupColumnWarning(path, groupColumnName(o), s); w != "" {
@@ -797,6 +817,24 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 	}
 	if base != nil {
 		doc.BaseStation = &report.Correction{File: o.base, Summary: strings.Join(baseNotes, "; ")}
+	}
+	// The sensor's orientation: an offset turning with it, a field
+	// turning within the groups, and the survey's field against the base
+	// record's absolute one (direction and magnitude).
+	if w := turns.warning(cal); w != "" {
+		sv.alerts = append(sv.alerts, w)
+	}
+	if w := swings.warning(); w != "" {
+		sv.alerts = append(sv.alerts, w)
+	}
+	if base != nil && !o.coil.on() {
+		var origin *[2]float64
+		if org := doc.Frame.Origin; org != nil {
+			origin = &[2]float64{org.Lat, org.Lon}
+		}
+		for _, w := range baseFieldWarnings(o.base, base, &field, origin, cal) {
+			sv.alerts = append(sv.alerts, w)
+		}
 	}
 	// Several logs: the groups in time order, not the order of the files
 	// given (loggroups.go).
