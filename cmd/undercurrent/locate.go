@@ -9,6 +9,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"regexp"
 	"runtime"
 	"runtime/debug"
 	"sort"
@@ -776,6 +777,9 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			// no gap.
 			rep, err := calibrate.BaseCorrect(s, base, &calibrate.BaseSettings{MaxHold: hold, MaxGap: hold, LeftOut: baseLeftOut})
 			if err != nil {
+				if h := zoneShiftHint(base, s); h != "" && strings.Contains(err.Error(), "does not") {
+					err = fmt.Errorf("%w; %s", err, h)
+				}
 				if len(baseLeftOut) > 0 {
 					err = fmt.Errorf("%w (%s of the base log were left out as spikes, see the warning below; they are readings, not gaps)", err, plural(len(baseLeftOut), "reading"))
 				}
@@ -887,7 +891,7 @@ func readBaseFile(ctx context.Context, o *locateOptions, logs []string, sv *surv
 	}
 	doc.Inputs = append(doc.Inputs, fileInput("base", o.base, base.Len()))
 	for _, w := range base.Warnings {
-		sv.warnings = append(sv.warnings, cliWording(w))
+		sv.warnings = append(sv.warnings, baseWording(cliWording(w)))
 	}
 	// The base log's field unit is checked as a survey log's is: a
 	// base in uT read as nT made a correction 1000 times too small,
@@ -1064,6 +1068,59 @@ func baseReadError(err error) error {
 	}
 	msg = strings.ReplaceAll(strings.ReplaceAll(strings.TrimPrefix(msg, "ingest: "), "--column ", "--base-column "), "--unit ", "--base-unit ")
 	return fmt.Errorf("%s (this is the base log, --base: --column and --unit apply to the survey logs only)", msg)
+}
+
+// baseWording words a warning of the base log's reader: the survey logs'
+// --column and --unit do not apply to it, --base-column and --base-unit
+// do (a base log's times without a UTC offset were told to take
+// "--unit time=UTC", which left the warning as it was).
+func baseWording(w string) string {
+	return baseFlagHint.ReplaceAllString(w, "${1}--base-$2 ")
+}
+
+// baseFlagHint matches the survey logs' --column and --unit in advice.
+var baseFlagHint = regexp.MustCompile(`(^|[^-a-z])--(column|unit) `)
+
+// zoneShiftHint says when the base record, moved by a whole number of
+// half hours (up to 14 hours either way, the span of the world's time
+// zones), would cover the rover log's time span: times written without a
+// UTC offset in a time zone's local time and read as UTC; "" otherwise.
+func zoneShiftHint(base, rover *ingest.Samples) string {
+	span := func(t []float64) (lo, hi float64) {
+		lo, hi = math.Inf(1), math.Inf(-1)
+		for _, v := range t {
+			if !math.IsNaN(v) && !math.IsInf(v, 0) {
+				lo, hi = math.Min(lo, v), math.Max(hi, v)
+			}
+		}
+		return lo, hi
+	}
+	blo, bhi := span(base.Time)
+	rlo, rhi := span(rover.Time)
+	if !(bhi > blo) || !(rhi >= rlo) || rlo < 1e8 {
+		return ""
+	}
+	for k := 1; k <= 28; k++ {
+		for _, sign := range []float64{1, -1} {
+			sh := sign * float64(k) * 1800
+			if blo+sh <= rlo && bhi+sh >= rhi {
+				h := float64(k) / 2
+				dir := "later"
+				if sign < 0 {
+					dir = "earlier"
+				}
+				// Local times read as UTC are late by the zone's offset.
+				zone := -sh
+				zs := "+"
+				if zone < 0 {
+					zs, zone = "-", -zone
+				}
+				return fmt.Sprintf("the base record would cover it if its times were %g h %s, a whole number of half hours: are they the local times of a zone UTC%s%02d:%02d written without their offset (and so read as UTC)? If so, write the offset into them (such as %s%s%02d:%02d)",
+					h, dir, zs, int(zone)/3600, int(zone)%3600/60, time.Unix(int64(blo), 0).UTC().Format("2006-01-02T15:04:05"), zs, int(zone)/3600, int(zone)%3600/60)
+			}
+		}
+	}
+	return ""
 }
 
 // nonEmpty returns s as a one-element list, or nil when it is empty.
