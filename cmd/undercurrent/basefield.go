@@ -122,8 +122,9 @@ func baseDistanceKm(base *ingest.Samples, origin *[2]float64) (float64, bool) {
 // do (a scale error or an offset left in). Nothing when either is not an
 // absolute Earth's field in east, north, up, or the base's distance is
 // unknown. basePath names the base log, cal is the calibration applied
-// (nil: none).
-func baseFieldWarnings(basePath string, base *ingest.Samples, f *surveyField, origin *[2]float64, cal *calibrate.Calibration) []string {
+// (nil: none), mountYaw the --mount-yaw already applied (the flag's value
+// to suggest is the sum).
+func baseFieldWarnings(basePath string, base *ingest.Samples, f *surveyField, origin *[2]float64, cal *calibrate.Calibration, mountYaw float64) []string {
 	if base == nil || f == nil || len(f.e) < 10 || base.Len() == 0 {
 		return nil
 	}
@@ -171,7 +172,7 @@ func baseFieldWarnings(basePath string, base *ingest.Samples, f *surveyField, or
 		msg := fmt.Sprintf("the survey's field after the corrections (median east %.0f, north %.0f, up %.0f nT) points %.1f° away from the base record's (%.0f, %.0f, %.0f nT; %s, %s), more than the %.1f° that local anomalies and the distance between them allow: its horizontal direction is turned %.1f° %s (seen from above) and it dips %.1f° %s. The sensor's axes are turned against east, north, up, which a spin calibration cannot see and the fits' sigmas do not include (one field direction cannot part a turn about the vertical from a tilt fully: a tilt across the field also turns its horizontal direction).",
 			s[0], s[1], s[2], angle, b[0], b[1], b[2], basePath, where, allow, psi, side, tilt, steeper)
 		if psi >= 0.5 {
-			msg += fmt.Sprintf(" A turn about the vertical of %.1f° (a magnetometer turned on its pole or mount, a heading reference off) turns every fitted line with it: azimuths off by about %.1f°, plan offsets with them, currents and depths low by 1 - cos %.1f° (%.2f%%).", psi, psi, psi, 100*(1-math.Cos(psi*math.Pi/180)))
+			msg += fmt.Sprintf(" A turn about the vertical of %.1f° (a magnetometer turned on its pole or mount, a heading reference off) turns every fitted line with it: azimuths off by about %.1f°, plan offsets with them, currents and depths low by 1 - cos %.1f° (%.2f%%); if the magnetometer is turned on its mount, --mount-yaw %.1f turns the readings back.", psi, psi, psi, 100*(1-math.Cos(psi*math.Pi/180)), mountYaw-dh)
 		}
 		if tilt >= 0.5 {
 			msg += fmt.Sprintf(" A tilt of %.1f° (a leaning pole, an attitude reference off) turns the field into components no line gives: plan offsets off, currents scattered, perhaps a phantom return line.", tilt)

@@ -76,6 +76,10 @@ type locateOptions struct {
 	keepNames []string
 	// given lists the flags the user set, for the document's settings
 	given map[string]string
+	// mountYaw is --mount-yaw, degrees: the survey's field as read is
+	// turned this far anticlockwise seen from above (a magnetometer
+	// turned on its mount); the readings are turned back (mountturn.go).
+	mountYaw float64
 }
 
 // resultFiles are the files locate writes into its output directory.
@@ -83,6 +87,7 @@ var resultFiles = []string{report.FileJSON, report.FileCSV, report.FileFindings,
 
 func (o *locateOptions) setFlags(fs *pflag.FlagSet) {
 	fs.StringVar(&o.calibration, "calibration", "", "apply the sensor calibration in `CAL.json` (from undercurrent calibrate)")
+	fs.Float64Var(&o.mountYaw, "mount-yaw", 0, "the magnetometer is turned on its mount: its field as read is turned `DEG` degrees anticlockwise seen from above (the turn the check against the base record reports, with its sign); the readings are turned back by it about the sensor's vertical axis, after the calibration and before the attitude")
 	fs.StringArrayVar(&o.bases, "base", nil, "subtract the diurnal variation recorded by the base station log `BASE` (any log format, IAGA-2002 too); give it again for a record in several files (daily observatory files across midnight UTC), joined in time order whatever their order here (readings at one time must agree, files that overlap must share readings there, and the level must not step where one file ends and the next begins)")
 	fs.Float64Var(&o.baseHold, "base-hold", 0, "correct survey readings up to `S` seconds before or after the base log with its nearest value held, and interpolate the base across its gaps up to S seconds long, S above or below the default (default for both: five base sample intervals, at least 60 s and at most 300 s; 0: no hold at all, and no reading missing from the base; readings further out, or in a longer gap, are refused, since a held value or a straight line across the gap is no correction)")
 	fs.StringSliceVar(&o.baseColumns, "base-column", nil, "name the base log's columns, `CANON=NAME` as --column does for the survey logs (time=Time,bx=magX,by=magY,bz=magZ); not for an IAGA-2002 base")
@@ -717,6 +722,9 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 				return nil, fmt.Errorf("%s: %w", path, err)
 			}
 		}
+		if o.mountYaw != 0 && !o.coil.on() {
+			turnMount(s, o.mountYaw)
+		}
 		// A DC field log's orientation checks (sensorturn.go): the
 		// rotations the attitude applies, for an offset turning with the
 		// sensor; the field turning within the groups.
@@ -836,7 +844,7 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		if org := doc.Frame.Origin; org != nil {
 			origin = &[2]float64{org.Lat, org.Lon}
 		}
-		for _, w := range baseFieldWarnings(o.base, base, &field, origin, cal) {
+		for _, w := range baseFieldWarnings(o.base, base, &field, origin, cal, o.mountYaw) {
 			sv.alerts = append(sv.alerts, w)
 		}
 	}

@@ -95,10 +95,11 @@ func warningNumber(warns []string, re *regexp.Regexp) (float64, bool) {
 }
 
 var (
-	headingRE = regexp.MustCompile(`horizontal direction is turned ([0-9.]+)° (?:anti)?clockwise`)
-	dipRE     = regexp.MustCompile(`it dips ([0-9.]+)° (?:steeper|shallower)`)
-	cosRE     = regexp.MustCompile(`low by 1 - cos [0-9.]+° \(([0-9.]+)%\)`)
-	scaleRE   = regexp.MustCompile(`\|B\| of the survey after the corrections is [0-9]+ nT \(median\), ([-+0-9.]+)% from`)
+	headingRE  = regexp.MustCompile(`horizontal direction is turned ([0-9.]+)° (?:anti)?clockwise`)
+	dipRE      = regexp.MustCompile(`it dips ([0-9.]+)° (?:steeper|shallower)`)
+	cosRE      = regexp.MustCompile(`low by 1 - cos [0-9.]+° \(([0-9.]+)%\)`)
+	mountYawRE = regexp.MustCompile(`--mount-yaw ([-0-9.]+) turns the readings back`)
+	scaleRE    = regexp.MustCompile(`\|B\| of the survey after the corrections is [0-9]+ nT \(median\), ([-+0-9.]+)% from`)
 )
 
 // TestLocateWarnsOfTurnedSensor: the magnetometer turned 20° about the
@@ -155,6 +156,48 @@ func TestLocateWarnsOfTurnedSensor(t *testing.T) {
 			// 1 - cos 20° is 6.03% (the turn printed to 0.1°: ± 0.07%).
 			if pct, ok := warningNumber(doc.Warnings, cosRE); tc.heading > 0 && (!ok || math.Abs(pct-100*(1-math.Cos(tc.heading*math.Pi/180))) > 0.15) {
 				t.Errorf("the warning does not give 1 - cos of the turn: %q", doc.Warnings)
+			}
+			if tc.heading == 0 {
+				return
+			}
+			// The --mount-yaw the warning names turns the readings back:
+			// the currents are then those of the same sensor unturned
+			// (the level case's run, the same seed), within their sigmas,
+			// where without it they were 6% (tens of sigma) low.
+			yaw, ok := warningNumber(doc.Warnings, mountYawRE)
+			if !ok {
+				t.Fatalf("the warning names no --mount-yaw: %q", doc.Warnings)
+			}
+			if math.Abs(yaw-tc.heading) > 0.4 {
+				t.Errorf("--mount-yaw %g named for the scenario's %g° anticlockwise turn", yaw, tc.heading)
+			}
+			levelSurvey, levelBase := simulateWithBase(t, t.TempDir(), kestrelSensor(t, offset, "", false))
+			level := locateGrouped(t, "--calibration", cal, "--base", levelBase, levelSurvey)
+			back := locateGrouped(t, "--calibration", cal, "--base", base, "--mount-yaw", strconv.FormatFloat(yaw, 'f', -1, 64), survey)
+			if _, ok := warningNumber(back.Warnings, headingRE); ok {
+				t.Errorf("--mount-yaw %g given: %q", yaw, back.Warnings)
+			}
+			ref := map[string]docSource{}
+			for _, g := range level.Groups {
+				if len(g.Sources) > 0 {
+					ref[g.Key] = g.Sources[0]
+				}
+			}
+			pulls := func(d resultDoc) []float64 {
+				var p []float64
+				for _, g := range d.Groups {
+					r, ok := ref[g.Key]
+					if len(g.Sources) == 0 || !ok {
+						continue
+					}
+					p = append(p, math.Abs(math.Abs(g.Sources[0].Current)-math.Abs(r.Current))/r.CurrentSigma)
+				}
+				return p
+			}
+			turned, turnedBack := finiteMedian(pulls(doc)), finiteMedian(pulls(back))
+			t.Logf("currents against the unturned sensor's: median %.2f sigma off turned, %.2f with --mount-yaw %g", turned, turnedBack, yaw)
+			if !(turned > 10) || !(turnedBack < 1.5) {
+				t.Errorf("currents against the unturned sensor's: median %.1f sigma off turned, %.1f sigma with --mount-yaw %g (want over 10 and under 1.5)", turned, turnedBack, yaw)
 			}
 		})
 	}
