@@ -121,31 +121,31 @@ func baseDistanceKm(base *ingest.Samples, origin *[2]float64) (float64, bool) {
 // a site allows (a turned or tilted sensor) and one when their magnitudes
 // do (a scale error or an offset left in). Nothing when either is not an
 // absolute Earth's field in east, north, up, or the base's distance is
-// unknown. basePath names the base log, cal is the calibration applied
+// unknown (compared is then false). basePath names the base log, cal is the calibration applied
 // (nil: none), mountYaw the --mount-yaw already applied (the flag's value
 // to suggest is the sum).
-func baseFieldWarnings(basePath string, base *ingest.Samples, f *surveyField, origin *[2]float64, cal *calibrate.Calibration, mountYaw float64) []string {
+func baseFieldWarnings(basePath string, base *ingest.Samples, f *surveyField, origin *[2]float64, cal *calibrate.Calibration, mountYaw float64) (warns []string, compared bool) {
 	if base == nil || f == nil || len(f.e) < 10 || base.Len() == 0 {
-		return nil
+		return nil, false
 	}
 	if base.Frame == ingest.FrameSensor || calibrate.BaseFrameWarning(base) != "" || base.Meta["horizontal_frame"] == ingest.IAGABaselineKept {
-		return nil
+		return nil, false
 	}
 	b := [3]float64{finiteMedian(base.Bx), finiteMedian(base.By), finiteMedian(base.Bz)}
 	s := [3]float64{finiteMedian(f.e), finiteMedian(f.n), finiteMedian(f.u)}
 	if !finite(b[0]+b[1]+b[2]) || !finite(s[0]+s[1]+s[2]) {
-		return nil
+		return nil, false
 	}
 	nb, ns := norm(b), norm(s)
 	earth := func(v float64) bool { return v >= calibrate.MinEarthField && v <= calibrate.MaxEarthField }
 	if !earth(nb) || !earth(ns) {
-		return nil // a variation record, or a field not in nT
+		return nil, false // a variation record, or a field not in nT
 	}
 	km, known := baseDistanceKm(base, origin)
 	if !known {
-		return nil
+		return nil, false
 	}
-	var warns []string
+	compared = true
 	cos := (b[0]*s[0] + b[1]*s[1] + b[2]*s[2]) / (nb * ns)
 	angle := math.Acos(math.Max(-1, math.Min(1, cos))) * 180 / math.Pi
 	allow := fieldTurnAllowDeg + fieldTurnPerKmDeg*km
@@ -196,7 +196,17 @@ func baseFieldWarnings(basePath string, base *ingest.Samples, f *surveyField, or
 		warns = append(warns, fmt.Sprintf("|B| of the survey after the corrections is %.0f nT (median), %+.2f%% from the %.0f nT of the base record (%s, %s), more than the %.2f%% that local anomalies and the distance between them allow: %s. Currents scale with the sensor's scale (a scale %.2f%% off gives currents %.2f%% off), which the fits' sigmas do not include",
 			ns, 100*d, nb, basePath, where, 100*allowMag, cause, math.Abs(100*d), math.Abs(100*d)))
 	}
-	return warns
+	return warns, compared
 }
 
 func norm(v [3]float64) float64 { return math.Sqrt(v[0]*v[0] + v[1]*v[1] + v[2]*v[2]) }
+
+// uncheckedCalibrationWarning says what the calibration at path leaves
+// open (Calibration.Caveats) when no base record's field could check it.
+func uncheckedCalibrationWarning(path string, cal *calibrate.Calibration) string {
+	cv := cal.Caveats()
+	if len(cv) == 0 {
+		return ""
+	}
+	return fmt.Sprintf("%s leaves open: %s; no base record's absolute field was there to check the survey's corrected field against (a base log beside the survey, --base, checks its direction to 1° and its |B| to 0.25%%)", path, strings.Join(cv, "; "))
+}

@@ -839,13 +839,19 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 	if w := swings.warning(); w != "" {
 		sv.alerts = append(sv.alerts, w)
 	}
+	compared := false
 	if base != nil && !o.coil.on() {
 		var origin *[2]float64
 		if org := doc.Frame.Origin; org != nil {
 			origin = &[2]float64{org.Lat, org.Lon}
 		}
-		for _, w := range baseFieldWarnings(o.base, base, &field, origin, cal, o.mountYaw) {
-			sv.alerts = append(sv.alerts, w)
+		var warns []string
+		warns, compared = baseFieldWarnings(o.base, base, &field, origin, cal, o.mountYaw)
+		sv.alerts = append(sv.alerts, warns...)
+	}
+	if cal != nil && !compared {
+		if w := uncheckedCalibrationWarning(o.calibration, cal); w != "" {
+			sv.warnings = append(sv.warnings, w)
 		}
 	}
 	// Several logs: the groups in time order, not the order of the files

@@ -225,6 +225,12 @@ func TestLocateWarnsOfUnfixedScale(t *testing.T) {
 	if !containsAll(doc.Warnings, "without --reference") || !containsAll(doc.Warnings, "--reference 500") {
 		t.Errorf("the warning does not name --reference with the base's |B|: %q", doc.Warnings)
 	}
+	// Without a base log nothing checks it: the warning says what the
+	// calibration leaves open.
+	nobase := locateGrouped(t, "--calibration", cal, survey)
+	if !containsAll(nobase.Warnings, "leaves open: the sensor frame is fixed only up to a rotation") || !containsAll(nobase.Warnings, "absolute scale is the sensor's own") {
+		t.Errorf("no base log: warnings %q", nobase.Warnings)
+	}
 	// The calibration's caveat reaches the result document.
 	type calDoc struct {
 		Calibration struct {
