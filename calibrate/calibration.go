@@ -147,7 +147,8 @@ func (c *Calibration) ApplyColumns(bx, by, bz []float64) {
 	}
 }
 
-// Summary returns one line describing the calibration, for reports.
+// Summary returns one line describing the calibration, for reports,
+// ending with what it leaves open (Caveats).
 func (c *Calibration) Summary() string {
 	var b strings.Builder
 	fmt.Fprintf(&b, "%s calibration of %s", c.Method, c.Created.Format("2006-01-02"))
@@ -170,7 +171,74 @@ func (c *Calibration) Summary() string {
 	if c.Before != nil && c.After != nil {
 		fmt.Fprintf(&b, ", |B| spread %.2f -> %.2f nT", c.Before.Std, c.After.Std)
 	}
+	if cv := c.Caveats(); len(cv) > 0 {
+		fmt.Fprintf(&b, "; left open: %s", strings.Join(cv, "; "))
+	}
 	return b.String()
+}
+
+// NoReferenceNote begins the note the calibrate command records for a
+// spin calibration made without a reference field magnitude, whose scale
+// is then the sensor's own (ScaleFixed).
+const NoReferenceNote = "no --reference:"
+
+// ScaleFixed reports whether the calibration fixes the sensor's absolute
+// scale: an ellipsoid calibration made with a reference field magnitude.
+// Offset-only methods fit no scale; an ellipsoid fit without a reference
+// maps the readings to the ellipsoid's own size, the sensor's own scale.
+func (c *Calibration) ScaleFixed() bool {
+	if c.Method != MethodEllipsoid {
+		return false
+	}
+	for _, n := range c.Notes {
+		if strings.HasPrefix(n, NoReferenceNote) {
+			return false
+		}
+	}
+	return true
+}
+
+// Caveats lists, in a few words each, what the calibration leaves open
+// and so passes on to every result made with it: for an ellipsoid (spin)
+// calibration the frame's rotation (a spin sees only |B|) and, without a
+// reference, the absolute scale; for offset-only methods the soft iron and
+// scale not fitted, the offsets' standard errors and the axes not
+// determined.
+func (c *Calibration) Caveats() []string {
+	var out []string
+	switch c.Method {
+	case MethodEllipsoid:
+		out = append(out, "the sensor frame is fixed only up to a rotation (a spin cannot see a turn of the sensor's axes, which turns fitted azimuths and offsets with it)")
+		if !c.ScaleFixed() {
+			out = append(out, "the absolute scale is the sensor's own (made without --reference), and currents scale with it")
+		}
+	default:
+		out = append(out, "offsets only: no soft iron or scale fitted")
+		if len(c.Undetermined) > 0 {
+			out = append(out, fmt.Sprintf("the %s offset not determined (left at 0), which turns with a sensor whose attitude changes", strings.Join(c.Undetermined, ", ")))
+		}
+		if c.OffsetSigma != nil {
+			var parts []string
+			for k, v := range c.OffsetSigma {
+				if !hasAxis(c.Undetermined, string("xyz"[k])) {
+					parts = append(parts, fmt.Sprintf("%c ± %.3g", "xyz"[k], v))
+				}
+			}
+			if len(parts) > 0 {
+				out = append(out, "offsets "+strings.Join(parts, ", ")+" nT")
+			}
+		}
+	}
+	return out
+}
+
+func hasAxis(list []string, s string) bool {
+	for _, v := range list {
+		if v == s {
+			return true
+		}
+	}
+	return false
 }
 
 // Validate checks that c is usable: a known version and a finite,

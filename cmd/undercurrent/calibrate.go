@@ -180,10 +180,11 @@ Examples:
 			// the calibration file so that locate can tell a log of another
 			// sensor (Calibration.Check).
 			var sensor string
+			var span float64             // the time the spin log spans, s (spinDriftNote)
 			var where func(j int) string // names reading j of the last log read
 			read := func(role, path string) ([][3]float64, calibrate.Input, error) {
 				// A zero-field log is near zero by design: no unit check.
-				r, in, w, err := readCalibrationLog(ctx, &rf, opts, role, path, role != "zero", &sensor, stderr)
+				r, in, w, err := readCalibrationLog(ctx, &rf, opts, role, path, role != "zero", &sensor, &span, stderr)
 				where = w
 				return r, in, err
 			}
@@ -218,6 +219,9 @@ Examples:
 				}
 				cal = calibrate.FromEllipsoid(res, in)
 				spinNotes(cal, res, where, reference, stderr, spin)
+				if n := spinDriftNote(span); n != "" {
+					cal.Notes = append(cal.Notes, n)
+				}
 			case zero != "":
 				r, in, err := read("zero", zero)
 				if err != nil {
@@ -336,7 +340,9 @@ func inFile(path string, err error) error {
 // or, in a log without time, its line in a CSV file (counting the rows
 // --drop-missing dropped, and the header and comment lines), or else its
 // data row.
-func readCalibrationLog(ctx context.Context, rf *readFlags, opts []ingest.Option, role, path string, checkUnits bool, sensor *string, stderr io.Writer) (r [][3]float64, in calibrate.Input, where func(j int) string, err error) {
+// readCalibrationLog reads a calibration log; span, when not nil, gets
+// the time the log spans in seconds (0 without a time column).
+func readCalibrationLog(ctx context.Context, rf *readFlags, opts []ingest.Option, role, path string, checkUnits bool, sensor *string, span *float64, stderr io.Writer) (r [][3]float64, in calibrate.Input, where func(j int) string, err error) {
 	s, rows, warns, err := rf.readLogRows(ctx, path, opts, checkUnits)
 	if err != nil {
 		return nil, calibrate.Input{}, nil, err
@@ -362,6 +368,18 @@ func readCalibrationLog(ctx context.Context, rf *readFlags, opts []ingest.Option
 	}
 	in, err = calibrate.FileInput(role, path, len(r))
 	times := s.Time
+	if span != nil {
+		lo, hi := math.Inf(1), math.Inf(-1)
+		for _, t := range times {
+			if !math.IsNaN(t) && !math.IsInf(t, 0) {
+				lo, hi = math.Min(lo, t), math.Max(hi, t)
+			}
+		}
+		*span = 0
+		if hi > lo {
+			*span = hi - lo
+		}
+	}
 	comment, headerLine := rf.comment, len(rf.header) == 0
 	where = func(j int) string {
 		if j < len(times) && !math.IsNaN(times[j]) {
@@ -386,7 +404,7 @@ const maxReferenceScale = 0.1
 
 // --reference, whose scale is the sensor's own; printCalibration then
 // labels the field magnitude "radius", not "reference".
-const noReferenceNote = "no --reference:"
+const noReferenceNote = calibrate.NoReferenceNote
 
 // spinNotes records in cal what the ellipsoid fit left out (with the
 // times of those readings, or their places in a log without time, named
@@ -432,6 +450,24 @@ func spinNotes(cal *calibrate.Calibration, res *calibrate.EllipsoidResult, where
 	if reference == 0 {
 		cal.Notes = append(cal.Notes, fmt.Sprintf("%s the matrix maps the readings to the fitted ellipsoid's own size, %.1f nT, so the absolute scale is the sensor's own (a sensor reading 3%% high still reads 3%% high); give the site's field magnitude with --reference to fix it", noReferenceNote, res.Radius))
 	}
+}
+
+// quietDriftNTPerHour is the rate at which the Earth's field changes on
+// an ordinary day at mid latitudes, nT per hour: the daily variation of
+// some tens of nT over a few hours (from memory), taken at 40 nT/h.
+const quietDriftNTPerHour = 40.0
+
+// spinDriftNote says how far the field's own change during a spin of span
+// seconds can move the offsets, which their standard errors (from the
+// scatter of |B| about the fitted ellipsoid) do not include: a spin that
+// tips an axis from along the field to against it maps any change of |F|
+// onto that axis's offset, and the fit absorbs it. "" without a time span.
+func spinDriftNote(span float64) string {
+	if !(span > 0) {
+		return ""
+	}
+	bound := quietDriftNTPerHour * span / 3600
+	return fmt.Sprintf("the field's own change during the spin's %.1f min is not in the standard errors: it goes into the offsets (above all of the axis the spin tips from along the field to against it), up to about %.2g nT at an ordinary day's %g nT/h and more in a disturbed hour; spin briefly, in a quiet hour", span/60, bound, quietDriftNTPerHour)
 }
 
 // calibrationTime shows a reading's time: Unix times as UTC, small

@@ -9,6 +9,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"regexp"
 	"runtime"
 	"runtime/debug"
 	"sort"
@@ -75,6 +76,10 @@ type locateOptions struct {
 	keepNames []string
 	// given lists the flags the user set, for the document's settings
 	given map[string]string
+	// mountYaw is --mount-yaw, degrees: the survey's field as read is
+	// turned this far anticlockwise seen from above (a magnetometer
+	// turned on its mount); the readings are turned back (mountturn.go).
+	mountYaw float64
 }
 
 // resultFiles are the files locate writes into its output directory.
@@ -82,6 +87,7 @@ var resultFiles = []string{report.FileJSON, report.FileCSV, report.FileFindings,
 
 func (o *locateOptions) setFlags(fs *pflag.FlagSet) {
 	fs.StringVar(&o.calibration, "calibration", "", "apply the sensor calibration in `CAL.json` (from undercurrent calibrate)")
+	fs.Float64Var(&o.mountYaw, "mount-yaw", 0, "the magnetometer is turned on its mount: its field as read is turned `DEG` degrees anticlockwise seen from above (the turn the check against the base record reports, with its sign); the readings are turned back by it about the sensor's vertical axis, after the calibration and before the attitude")
 	fs.StringArrayVar(&o.bases, "base", nil, "subtract the diurnal variation recorded by the base station log `BASE` (any log format, IAGA-2002 too); give it again for a record in several files (daily observatory files across midnight UTC), joined in time order whatever their order here (readings at one time must agree, files that overlap must share readings there, and the level must not step where one file ends and the next begins)")
 	fs.Float64Var(&o.baseHold, "base-hold", 0, "correct survey readings up to `S` seconds before or after the base log with its nearest value held, and interpolate the base across its gaps up to S seconds long, S above or below the default (default for both: five base sample intervals, at least 60 s and at most 300 s; 0: no hold at all, and no reading missing from the base; readings further out, or in a longer gap, are refused, since a held value or a straight line across the gap is no correction)")
 	fs.StringSliceVar(&o.baseColumns, "base-column", nil, "name the base log's columns, `CANON=NAME` as --column does for the survey logs (time=Time,bx=magX,by=magY,bz=magZ); not for an IAGA-2002 base")
@@ -680,6 +686,9 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		// the name (loggroups.go).
 		sv.alerts = append(sv.alerts, nameReusedGroups(logs, read)...)
 	}
+	var turns offsetTurn
+	var swings swing
+	var field surveyField
 	for k, path := range logs {
 		s := read[k]
 		read[k] = nil // the groups hold the readings from here on
@@ -713,10 +722,30 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 				return nil, fmt.Errorf("%s: %w", path, err)
 			}
 		}
+		if o.mountYaw != 0 && !o.coil.on() {
+			turnMount(s, o.mountYaw)
+		}
+		// A DC field log's orientation checks (sensorturn.go): the
+		// rotations the attitude applies, for an offset turning with the
+		// sensor; the field turning within the groups.
+		checkTurns := !sv.ac && !o.coil.on()
+		var rot [][3][3]float64
 		if s.Frame == ingest.FrameSensor {
+			if checkTurns {
+				rot = attitudeTurns(s)
+			}
 			if err := calibrate.Tilt(s, nil); err != nil {
 				return nil, err
 			}
+			if rot != nil {
+				turns.add(path, s, rot)
+			}
+		}
+		if checkTurns {
+			swings.add(path, s)
+		}
+		if base != nil && !o.coil.on() {
+			field.add(s)
 		}
 		if o.groupBy == "" {
 			if w := groupColumnWarning(path, groupColumnName(o), s); w != "" {
@@ -756,6 +785,9 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			// no gap.
 			rep, err := calibrate.BaseCorrect(s, base, &calibrate.BaseSettings{MaxHold: hold, MaxGap: hold, LeftOut: baseLeftOut})
 			if err != nil {
+				if h := zoneShiftHint(base, s); h != "" && strings.Contains(err.Error(), "does not") {
+					err = fmt.Errorf("%w; %s", err, h)
+				}
 				if len(baseLeftOut) > 0 {
 					err = fmt.Errorf("%w (%s of the base log were left out as spikes, see the warning below; they are readings, not gaps)", err, plural(len(baseLeftOut), "reading"))
 				}
@@ -797,6 +829,30 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 	}
 	if base != nil {
 		doc.BaseStation = &report.Correction{File: o.base, Summary: strings.Join(baseNotes, "; ")}
+	}
+	// The sensor's orientation: an offset turning with it, a field
+	// turning within the groups, and the survey's field against the base
+	// record's absolute one (direction and magnitude).
+	if w := turns.warning(cal); w != "" {
+		sv.alerts = append(sv.alerts, w)
+	}
+	if w := swings.warning(); w != "" {
+		sv.alerts = append(sv.alerts, w)
+	}
+	compared := false
+	if base != nil && !o.coil.on() {
+		var origin *[2]float64
+		if org := doc.Frame.Origin; org != nil {
+			origin = &[2]float64{org.Lat, org.Lon}
+		}
+		var warns []string
+		warns, compared = baseFieldWarnings(o.base, base, &field, origin, cal, o.mountYaw)
+		sv.alerts = append(sv.alerts, warns...)
+	}
+	if cal != nil && !compared {
+		if w := uncheckedCalibrationWarning(o.calibration, cal); w != "" {
+			sv.warnings = append(sv.warnings, w)
+		}
 	}
 	// Several logs: the groups in time order, not the order of the files
 	// given (loggroups.go).
@@ -849,7 +905,7 @@ func readBaseFile(ctx context.Context, o *locateOptions, logs []string, sv *surv
 	}
 	doc.Inputs = append(doc.Inputs, fileInput("base", o.base, base.Len()))
 	for _, w := range base.Warnings {
-		sv.warnings = append(sv.warnings, cliWording(w))
+		sv.warnings = append(sv.warnings, baseWording(cliWording(w)))
 	}
 	// The base log's field unit is checked as a survey log's is: a
 	// base in uT read as nT made a correction 1000 times too small,
@@ -1026,6 +1082,59 @@ func baseReadError(err error) error {
 	}
 	msg = strings.ReplaceAll(strings.ReplaceAll(strings.TrimPrefix(msg, "ingest: "), "--column ", "--base-column "), "--unit ", "--base-unit ")
 	return fmt.Errorf("%s (this is the base log, --base: --column and --unit apply to the survey logs only)", msg)
+}
+
+// baseWording words a warning of the base log's reader: the survey logs'
+// --column and --unit do not apply to it, --base-column and --base-unit
+// do (a base log's times without a UTC offset were told to take
+// "--unit time=UTC", which left the warning as it was).
+func baseWording(w string) string {
+	return baseFlagHint.ReplaceAllString(w, "${1}--base-$2 ")
+}
+
+// baseFlagHint matches the survey logs' --column and --unit in advice.
+var baseFlagHint = regexp.MustCompile(`(^|[^-a-z])--(column|unit) `)
+
+// zoneShiftHint says when the base record, moved by a whole number of
+// half hours (up to 14 hours either way, the span of the world's time
+// zones), would cover the rover log's time span: times written without a
+// UTC offset in a time zone's local time and read as UTC; "" otherwise.
+func zoneShiftHint(base, rover *ingest.Samples) string {
+	span := func(t []float64) (lo, hi float64) {
+		lo, hi = math.Inf(1), math.Inf(-1)
+		for _, v := range t {
+			if !math.IsNaN(v) && !math.IsInf(v, 0) {
+				lo, hi = math.Min(lo, v), math.Max(hi, v)
+			}
+		}
+		return lo, hi
+	}
+	blo, bhi := span(base.Time)
+	rlo, rhi := span(rover.Time)
+	if !(bhi > blo) || !(rhi >= rlo) || rlo < 1e8 {
+		return ""
+	}
+	for k := 1; k <= 28; k++ {
+		for _, sign := range []float64{1, -1} {
+			sh := sign * float64(k) * 1800
+			if blo+sh <= rlo && bhi+sh >= rhi {
+				h := float64(k) / 2
+				dir := "later"
+				if sign < 0 {
+					dir = "earlier"
+				}
+				// Local times read as UTC are late by the zone's offset.
+				zone := -sh
+				zs := "+"
+				if zone < 0 {
+					zs, zone = "-", -zone
+				}
+				return fmt.Sprintf("the base record would cover it if its times were %g h %s, a whole number of half hours: are they the local times of a zone UTC%s%02d:%02d written without their offset (and so read as UTC)? If so, write the offset into them (such as %s%s%02d:%02d)",
+					h, dir, zs, int(zone)/3600, int(zone)%3600/60, time.Unix(int64(blo), 0).UTC().Format("2006-01-02T15:04:05"), zs, int(zone)/3600, int(zone)%3600/60)
+			}
+		}
+	}
+	return ""
 }
 
 // nonEmpty returns s as a one-element list, or nil when it is empty.

@@ -1,0 +1,212 @@
+package main
+
+import (
+	"fmt"
+	"math"
+	"sort"
+	"strconv"
+	"strings"
+
+	"undercurrent/calibrate"
+	"undercurrent/ingest"
+)
+
+// The survey's corrected field against the base record's absolute field.
+//
+// A base log holds the Earth's field in east, north, up at a fixed place
+// near the survey. The survey's readings, once calibrated (and turned by
+// their attitude, for a sensor-frame log), hold the same field plus the
+// conductors' anomaly, which is a few hundred nT at most over most of a
+// survey, so that their median is the same field to within the site's
+// crustal differences (tens of nT). A sensor turned on its pole, a heading
+// reference off or a leaning pole turns the survey's field away from the
+// base's; a scale error (a spin calibration without --reference) or an
+// offset left in changes its magnitude. Neither shows in the fits: every
+// line is turned or scaled with the field, its misfit unchanged. A spin
+// calibration cannot see a turn at all (it fixes the frame only up to a
+// rotation), so this comparison is the run's only check of it.
+
+const (
+	// fieldTurnAllowDeg is the angle between the survey's median field and
+	// the base's that a site allows: 1° is 870 nT across a 50 000 nT
+	// field, several times the crustal differences between two places a
+	// few hundred metres apart (tens of nT) and the median's share of the
+	// conductors' anomaly.
+	fieldTurnAllowDeg = 1.0
+	// fieldTurnPerKmDeg is the main field's change of direction with
+	// distance, degrees per km: the inclination of a dipole field changes
+	// by about 2° per degree of latitude (111 km), declination gradients
+	// are of the same order away from the poles (from memory of the IGRF
+	// charts), taken at 0.03°/km to be safe.
+	fieldTurnPerKmDeg = 0.03
+	// fieldScaleAllow is the relative difference of |B| a site allows:
+	// 0.25%, 125 nT at 50 000 nT, for crustal differences and the
+	// median's share of the anomaly. A fluxgate's scale error is 0.1-1%
+	// (from memory).
+	fieldScaleAllow = 0.0025
+	// fieldMagPerKm is the main field's change of magnitude with
+	// distance, nT per km (a few nT/km in the IGRF, from memory, doubled).
+	fieldMagPerKm = 10.0
+	// maxFieldSamples is how many readings of each log the comparison
+	// keeps (every k-th reading of a longer log).
+	maxFieldSamples = 20000
+)
+
+// surveyField collects the survey's corrected field, east, north, up, nT,
+// for the comparison with the base record.
+type surveyField struct{ e, n, u []float64 }
+
+// add keeps the finite readings of s (every k-th of a long log).
+func (f *surveyField) add(s *ingest.Samples) {
+	n := s.Len()
+	step := 1 + n/maxFieldSamples
+	for i := 0; i < n; i += step {
+		e, no, u := s.Bx[i], s.By[i], s.Bz[i]
+		if !finite(e) || !finite(no) || !finite(u) {
+			continue
+		}
+		f.e, f.n, f.u = append(f.e, e), append(f.n, no), append(f.u, u)
+	}
+}
+
+func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
+
+// finiteMedian returns the median of the finite values of x (NaN when none).
+func finiteMedian(x []float64) float64 {
+	v := make([]float64, 0, len(x))
+	for _, a := range x {
+		if finite(a) {
+			v = append(v, a)
+		}
+	}
+	if len(v) == 0 {
+		return math.NaN()
+	}
+	sort.Float64s(v)
+	m := len(v) / 2
+	if len(v)%2 == 1 {
+		return v[m]
+	}
+	return (v[m-1] + v[m]) / 2
+}
+
+// baseDistanceKm returns the distance from the survey's origin to the
+// base station, km, and whether it is known. A base log that is not an
+// observatory's (no IAGA-2002 header) is taken to be the survey's own
+// base station, beside it (0 km), unless it gives its latitude and
+// longitude; an observatory's record with a position but no survey origin
+// (local x, y only) is at an unknown distance.
+func baseDistanceKm(base *ingest.Samples, origin *[2]float64) (float64, bool) {
+	lat, err1 := strconv.ParseFloat(strings.TrimSpace(base.Meta["latitude"]), 64)
+	lon, err2 := strconv.ParseFloat(strings.TrimSpace(base.Meta["longitude"]), 64)
+	placed := err1 == nil && err2 == nil
+	iaga := base.Meta["iaga_code"] != "" || base.Meta["elements"] != ""
+	if !placed {
+		return 0, !iaga
+	}
+	if origin == nil {
+		return 0, false
+	}
+	// Haversine on a sphere of the mean Earth radius, 6371 km: a distance
+	// only used to widen an allowance.
+	const r = 6371.0
+	p1, p2 := origin[0]*math.Pi/180, lat*math.Pi/180
+	dl := (lon - origin[1]) * math.Pi / 180
+	h := math.Pow(math.Sin((p2-p1)/2), 2) + math.Cos(p1)*math.Cos(p2)*math.Pow(math.Sin(dl/2), 2)
+	return 2 * r * math.Asin(math.Min(1, math.Sqrt(h))), true
+}
+
+// baseFieldWarnings compares the survey's corrected field f with the base
+// record's and returns a warning when their directions differ by more than
+// a site allows (a turned or tilted sensor) and one when their magnitudes
+// do (a scale error or an offset left in). Nothing when either is not an
+// absolute Earth's field in east, north, up, or the base's distance is
+// unknown (compared is then false). basePath names the base log, cal is the calibration applied
+// (nil: none), mountYaw the --mount-yaw already applied (the flag's value
+// to suggest is the sum).
+func baseFieldWarnings(basePath string, base *ingest.Samples, f *surveyField, origin *[2]float64, cal *calibrate.Calibration, mountYaw float64) (warns []string, compared bool) {
+	if base == nil || f == nil || len(f.e) < 10 || base.Len() == 0 {
+		return nil, false
+	}
+	if base.Frame == ingest.FrameSensor || calibrate.BaseFrameWarning(base) != "" || base.Meta["horizontal_frame"] == ingest.IAGABaselineKept {
+		return nil, false
+	}
+	b := [3]float64{finiteMedian(base.Bx), finiteMedian(base.By), finiteMedian(base.Bz)}
+	s := [3]float64{finiteMedian(f.e), finiteMedian(f.n), finiteMedian(f.u)}
+	if !finite(b[0]+b[1]+b[2]) || !finite(s[0]+s[1]+s[2]) {
+		return nil, false
+	}
+	nb, ns := norm(b), norm(s)
+	earth := func(v float64) bool { return v >= calibrate.MinEarthField && v <= calibrate.MaxEarthField }
+	if !earth(nb) || !earth(ns) {
+		return nil, false // a variation record, or a field not in nT
+	}
+	km, known := baseDistanceKm(base, origin)
+	if !known {
+		return nil, false
+	}
+	compared = true
+	cos := (b[0]*s[0] + b[1]*s[1] + b[2]*s[2]) / (nb * ns)
+	angle := math.Acos(math.Max(-1, math.Min(1, cos))) * 180 / math.Pi
+	allow := fieldTurnAllowDeg + fieldTurnPerKmDeg*km
+	where := "beside the survey"
+	if km > 0.05 {
+		where = fmt.Sprintf("%.1f km from the survey", km)
+	}
+	if angle > allow {
+		// The horizontal direction (declination-like, clockwise from
+		// north) and the dip below the horizontal of each.
+		head := func(v [3]float64) float64 { return math.Atan2(v[0], v[1]) * 180 / math.Pi }
+		dip := func(v [3]float64) float64 { return math.Atan2(-v[2], math.Hypot(v[0], v[1])) * 180 / math.Pi }
+		dh := math.Remainder(head(s)-head(b), 360)
+		dd := dip(s) - dip(b)
+		side := "clockwise"
+		if dh < 0 {
+			side = "anticlockwise"
+		}
+		steeper := "steeper"
+		if dd < 0 {
+			steeper = "shallower"
+		}
+		psi, tilt := math.Abs(dh), math.Abs(dd)
+		msg := fmt.Sprintf("the survey's field after the corrections (median east %.0f, north %.0f, up %.0f nT) points %.1f° away from the base record's (%.0f, %.0f, %.0f nT; %s, %s), more than the %.1f° that local anomalies and the distance between them allow: its horizontal direction is turned %.1f° %s (seen from above) and it dips %.1f° %s. The sensor's axes are turned against east, north, up (or the base magnetometer's own are), which a spin calibration cannot see and the fits' sigmas do not include (one field direction cannot part a turn about the vertical from a tilt fully: a tilt across the field also turns its horizontal direction).",
+			s[0], s[1], s[2], angle, b[0], b[1], b[2], basePath, where, allow, psi, side, tilt, steeper)
+		if psi >= 0.5 {
+			msg += fmt.Sprintf(" A turn about the vertical of %.1f° (a magnetometer turned on its pole or mount, a heading reference off) turns every fitted line with it: azimuths off by about %.1f°, plan offsets with them, currents and depths low by 1 - cos %.1f° (%.2f%%); if the magnetometer is turned on its mount, --mount-yaw %.1f turns the readings back.", psi, psi, psi, 100*(1-math.Cos(psi*math.Pi/180)), mountYaw-dh)
+		}
+		if tilt >= 0.5 {
+			msg += fmt.Sprintf(" A tilt of %.1f° (a leaning pole, an attitude reference off) turns the field into components no line gives: plan offsets off, currents scattered, perhaps a phantom return line.", tilt)
+		}
+		warns = append(warns, msg+" Check how the sensor is mounted and its attitude reference")
+	}
+	d := (ns - nb) / nb
+	allowMag := fieldScaleAllow + fieldMagPerKm*km/nb
+	if math.Abs(d) > allowMag {
+		var cause string
+		switch {
+		case cal == nil:
+			cause = fmt.Sprintf("no --calibration was given, so the sensor's offsets and scale are left in (calibrate it, with --reference %.0f if the base's level is absolute)", nb)
+		case cal.Method == calibrate.MethodEllipsoid && !cal.ScaleFixed():
+			cause = fmt.Sprintf("the calibration was made without --reference and keeps the sensor's own scale: calibrate again with --reference %.0f (the base's |B|, if its level is absolute)", nb)
+		case cal.Method != calibrate.MethodEllipsoid:
+			cause = fmt.Sprintf("the %s calibration fits offsets only, not the sensor's scale or soft iron, and may leave an offset undetermined", cal.Method)
+		default:
+			cause = "the calibration's scale or offsets do not suit this survey, or the base's own level is off"
+		}
+		warns = append(warns, fmt.Sprintf("|B| of the survey after the corrections is %.0f nT (median), %+.2f%% from the %.0f nT of the base record (%s, %s), more than the %.2f%% that local anomalies and the distance between them allow: %s. Currents scale with the sensor's scale (a scale %.2f%% off gives currents %.2f%% off), which the fits' sigmas do not include",
+			ns, 100*d, nb, basePath, where, 100*allowMag, cause, math.Abs(100*d), math.Abs(100*d)))
+	}
+	return warns, compared
+}
+
+func norm(v [3]float64) float64 { return math.Sqrt(v[0]*v[0] + v[1]*v[1] + v[2]*v[2]) }
+
+// uncheckedCalibrationWarning says what the calibration at path leaves
+// open (Calibration.Caveats) when no base record's field could check it.
+func uncheckedCalibrationWarning(path string, cal *calibrate.Calibration) string {
+	cv := cal.Caveats()
+	if len(cv) == 0 {
+		return ""
+	}
+	return fmt.Sprintf("%s leaves open: %s; no base record's absolute field was there to check the survey's corrected field against (a base log beside the survey, --base, checks its direction to 1° and its |B| to 0.25%%)", path, strings.Join(cv, "; "))
+}

@@ -1,0 +1,317 @@
+package main
+
+import (
+	"fmt"
+	"math"
+	"sort"
+	"strings"
+
+	"undercurrent/calibrate"
+	"undercurrent/ingest"
+)
+
+// Signs of a sensor whose orientation is not what the log says, looked
+// for in the survey's corrected field; both were diagnosed by the misfit
+// warning as conductors closer together than the fit can part.
+//
+//   - A sensor-frame log is turned to east, north, up by its attitude
+//     columns; an offset left in the readings (no calibration, or an
+//     offset-only one that leaves an axis undetermined) turns with the
+//     sensor and adds R(t) o to the field, R(t) the attitude's rotation.
+//     offsetTurnCheck fits o by least squares, each group's own mean field
+//     taken out, and warns when it is clearly there.
+//   - A sensor that turns (rocks, sways, is turned on its pole) with no
+//     attitude logged, or not applied, turns the Earth's field between
+//     its axes: the components swing by far more than |B| does, which no
+//     conductor's field makes. swingCheck compares them.
+
+// minOffsetTurnNT is the least turning offset offsetTurnCheck warns
+// about, nT: a tenth of a typical sensor's hard iron (hundreds of nT), and
+// several times the noise of a fluxgate.
+const minOffsetTurnNT = 30.0
+
+// offsetTurn accumulates the normal equations of b - mean_g(b) =
+// (R - mean_g(R)) o over the groups of the sensor-frame logs.
+type offsetTurn struct {
+	ata  [3][3]float64
+	atb  [3]float64
+	btb  float64
+	n    int
+	logs []string
+}
+
+// attitudeTurns returns the rotation Tilt applies to each reading of the
+// sensor-frame log s, as rows R[i] (east, north, up of each sensor axis),
+// found by turning the three unit vectors; nil when it cannot.
+func attitudeTurns(s *ingest.Samples) [][3][3]float64 {
+	n := s.Len()
+	out := make([][3][3]float64, n)
+	for j := 0; j < 3; j++ {
+		c := *s
+		cols := [3][]float64{make([]float64, n), make([]float64, n), make([]float64, n)}
+		for i := range cols[j] {
+			cols[j][i] = 1
+		}
+		c.Bx, c.By, c.Bz = cols[0], cols[1], cols[2]
+		if err := calibrate.Tilt(&c, nil); err != nil {
+			return nil
+		}
+		for i := 0; i < n; i++ {
+			out[i][0][j], out[i][1][j], out[i][2][j] = c.Bx[i], c.By[i], c.Bz[i]
+		}
+	}
+	return out
+}
+
+// groupRuns returns the row ranges of s's groups (one range without a
+// group column).
+func groupRuns(s *ingest.Samples) [][2]int {
+	n := s.Len()
+	if s.Group == nil {
+		return [][2]int{{0, n}}
+	}
+	var runs [][2]int
+	for lo := 0; lo < n; {
+		hi := lo + 1
+		for hi < n && s.Group[hi] == s.Group[lo] {
+			hi++
+		}
+		runs = append(runs, [2]int{lo, hi})
+		lo = hi
+	}
+	return runs
+}
+
+// add takes the readings of s, in east, north, up after Tilt, with rot
+// the rotations Tilt applied (attitudeTurns).
+func (t *offsetTurn) add(path string, s *ingest.Samples, rot [][3][3]float64) {
+	if rot == nil || len(rot) != s.Len() {
+		return
+	}
+	t.logs = append(t.logs, path)
+	for _, r := range groupRuns(s) {
+		lo, hi := r[0], r[1]
+		if hi-lo < 10 {
+			continue
+		}
+		var mb [3]float64
+		var mr [3][3]float64
+		m := 0
+		for i := lo; i < hi; i++ {
+			b := [3]float64{s.Bx[i], s.By[i], s.Bz[i]}
+			if !finite(b[0] + b[1] + b[2]) {
+				continue
+			}
+			m++
+			for k := 0; k < 3; k++ {
+				mb[k] += b[k]
+				for j := 0; j < 3; j++ {
+					mr[k][j] += rot[i][k][j]
+				}
+			}
+		}
+		if m < 10 {
+			continue
+		}
+		for k := 0; k < 3; k++ {
+			mb[k] /= float64(m)
+			for j := 0; j < 3; j++ {
+				mr[k][j] /= float64(m)
+			}
+		}
+		for i := lo; i < hi; i++ {
+			b := [3]float64{s.Bx[i], s.By[i], s.Bz[i]}
+			if !finite(b[0] + b[1] + b[2]) {
+				continue
+			}
+			for k := 0; k < 3; k++ {
+				y := b[k] - mb[k]
+				var a [3]float64
+				for j := 0; j < 3; j++ {
+					a[j] = rot[i][k][j] - mr[k][j]
+				}
+				for j := 0; j < 3; j++ {
+					t.atb[j] += a[j] * y
+					for l := 0; l < 3; l++ {
+						t.ata[j][l] += a[j] * a[l]
+					}
+				}
+				t.btb += y * y
+				t.n++
+			}
+		}
+	}
+}
+
+// warning returns the warning when the fitted turning offset is clear:
+// at least minOffsetTurnNT, over five standard errors, and explaining at
+// least a twentieth of the field's spread within the groups (a calibrated
+// walking survey over a 1.8 A pipe: under a millionth, the offset under a
+// tenth of its standard error). cal is the
+// calibration applied (nil: none).
+func (t *offsetTurn) warning(cal *calibrate.Calibration) string {
+	if t.n < 60 {
+		return ""
+	}
+	inv, ok := inverse3(t.ata)
+	if !ok {
+		return ""
+	}
+	var o [3]float64
+	for j := 0; j < 3; j++ {
+		for l := 0; l < 3; l++ {
+			o[j] += inv[j][l] * t.atb[l]
+		}
+	}
+	explained := o[0]*t.atb[0] + o[1]*t.atb[1] + o[2]*t.atb[2]
+	rss := math.Max(t.btb-explained, 0)
+	s2 := rss / float64(max(t.n-3, 1))
+	size := norm(o)
+	// The standard error of |o| along o's direction.
+	var se float64
+	if size > 0 {
+		u := [3]float64{o[0] / size, o[1] / size, o[2] / size}
+		var q float64
+		for j := 0; j < 3; j++ {
+			for l := 0; l < 3; l++ {
+				q += u[j] * inv[j][l] * u[l]
+			}
+		}
+		se = math.Sqrt(math.Max(q*s2, 0))
+	}
+	if size < minOffsetTurnNT || size < 5*se || explained < 0.05*t.btb {
+		return ""
+	}
+	var why string
+	switch {
+	case cal == nil:
+		why = "no --calibration was given, so the sensor's hard-iron offset is left in the readings; calibrate the sensor (undercurrent calibrate --spin, with --reference) and give --calibration"
+	case cal.Method != calibrate.MethodEllipsoid:
+		why = fmt.Sprintf("the %s calibration given fits offsets only (no soft iron%s), which cannot serve a sensor whose attitude changes; calibrate it with undercurrent calibrate --spin", cal.Method, undeterminedText(cal))
+	default:
+		why = "the calibration given does not take out this sensor's offset (made for another sensor, or the sensor changed since)"
+	}
+	rms := math.Sqrt(explained / float64(t.n))
+	return fmt.Sprintf("%s: the readings are in the sensor's axes, turned to east, north, up by the attitude columns, and hold an offset that turns with the sensor: roughly (%.0f, %.0f, %.0f) nT in the sensor's x, y, z (± %.0f nT, with any soft iron, which turns with it too, in it), fitted from how the field follows the attitude, %.0f nT RMS of the field's spread within the traverses; %s. The fits take it for the conductors' field: misfits, phantom or missing conductors, currents and depths off, which the misfit warning may blame on conductors closer together than the fit can part",
+		strings.Join(t.logs, ", "), o[0], o[1], o[2], se, rms, why)
+}
+
+// undeterminedText names the axes an offset-only calibration left at 0.
+func undeterminedText(cal *calibrate.Calibration) string {
+	if len(cal.Undetermined) == 0 {
+		return ""
+	}
+	return fmt.Sprintf("; its %s offset not determined, left at 0", strings.Join(cal.Undetermined, ", "))
+}
+
+// inverse3 inverts a symmetric 3x3 matrix; false when it is near
+// singular.
+func inverse3(a [3][3]float64) ([3][3]float64, bool) {
+	var inv [3][3]float64
+	det := a[0][0]*(a[1][1]*a[2][2]-a[1][2]*a[2][1]) - a[0][1]*(a[1][0]*a[2][2]-a[1][2]*a[2][0]) + a[0][2]*(a[1][0]*a[2][1]-a[1][1]*a[2][0])
+	scale := math.Abs(a[0][0]*a[1][1]*a[2][2]) + 1e-300
+	if math.Abs(det) < 1e-9*scale {
+		return inv, false
+	}
+	inv[0][0] = (a[1][1]*a[2][2] - a[1][2]*a[2][1]) / det
+	inv[0][1] = (a[0][2]*a[2][1] - a[0][1]*a[2][2]) / det
+	inv[0][2] = (a[0][1]*a[1][2] - a[0][2]*a[1][1]) / det
+	inv[1][0] = (a[1][2]*a[2][0] - a[1][0]*a[2][2]) / det
+	inv[1][1] = (a[0][0]*a[2][2] - a[0][2]*a[2][0]) / det
+	inv[1][2] = (a[0][2]*a[1][0] - a[0][0]*a[1][2]) / det
+	inv[2][0] = (a[1][0]*a[2][1] - a[1][1]*a[2][0]) / det
+	inv[2][1] = (a[0][1]*a[2][0] - a[0][0]*a[2][1]) / det
+	inv[2][2] = (a[0][0]*a[1][1] - a[0][1]*a[1][0]) / det
+	return inv, true
+}
+
+// swing counts the groups whose field turned rather than changed.
+type swing struct {
+	groups, turned int
+	// worst example: the group, its components' and |B|'s robust spread
+	name  string
+	comp  [3]float64
+	mag   float64
+	angle float64
+	logs  []string
+}
+
+// minSwingDeg is the least angle (the robust spread of the field's
+// direction within a group) swingCheck takes for a turning sensor: 1°,
+// 870 nT across a 50 000 nT field, more than the anomaly of most of a
+// traverse's readings.
+const minSwingDeg = 1.0
+
+// swingRatio is how many times |B|'s spread the components' must be: a
+// conductor's field, circling the conductor, changes |B| by a share of
+// its size set by the main field's part across the conductor (at least
+// the cosine of the inclination's complement for a level line), so its
+// components and |B| swing alike; a turn changes no |B| at all.
+const swingRatio = 5.0
+
+// robustScale is 1.4826 times the median absolute deviation of x.
+func robustScale(x []float64) float64 {
+	if len(x) == 0 {
+		return 0
+	}
+	m := finiteMedian(x)
+	d := make([]float64, 0, len(x))
+	for _, v := range x {
+		if finite(v) {
+			d = append(d, math.Abs(v-m))
+		}
+	}
+	sort.Float64s(d)
+	return 1.4826 * finiteMedian(d)
+}
+
+// add takes the groups of s, in east, north, up.
+func (w *swing) add(path string, s *ingest.Samples) {
+	added := false
+	for _, r := range groupRuns(s) {
+		lo, hi := r[0], r[1]
+		if hi-lo < 20 {
+			continue
+		}
+		mag := make([]float64, 0, hi-lo)
+		for i := lo; i < hi; i++ {
+			mag = append(mag, math.Sqrt(s.Bx[i]*s.Bx[i]+s.By[i]*s.By[i]+s.Bz[i]*s.Bz[i]))
+		}
+		f := finiteMedian(mag)
+		if !(f >= calibrate.MinEarthField && f <= calibrate.MaxEarthField) {
+			continue
+		}
+		w.groups++
+		added = true
+		comp := [3]float64{robustScale(s.Bx[lo:hi]), robustScale(s.By[lo:hi]), robustScale(s.Bz[lo:hi])}
+		sm := robustScale(mag)
+		total := norm(comp)
+		angle := math.Asin(math.Min(1, total/f)) * 180 / math.Pi
+		if angle >= minSwingDeg && total > swingRatio*sm {
+			w.turned++
+			if angle > w.angle {
+				name := ""
+				if s.Group != nil {
+					name = s.Group[lo]
+				}
+				w.name, w.comp, w.mag, w.angle = name, comp, sm, angle
+			}
+		}
+	}
+	if added {
+		w.logs = append(w.logs, path)
+	}
+}
+
+// warning returns the warning when at least a third of the groups turned.
+func (w *swing) warning() string {
+	if w.turned == 0 || 3*w.turned < w.groups {
+		return ""
+	}
+	ex := "the components' spread"
+	if w.name != "" {
+		ex = "on " + w.name + " the components' spread"
+	}
+	return fmt.Sprintf("%s: the field turned within %d of %d groups rather than changed: its components swing by far more than |B| does (%s is %.0f, %.0f, %.0f nT east, north, up against %.0f nT of |B|, a turn of about %.1f°), which no conductor's field does. The sensor was turning (rocking, swaying or turned on its pole) and its attitude is not logged, not read (a sensor-frame log needs --frame sensor and attitude columns) or not right; the fits take the turned Earth's field for conductors, and the misfit warning may blame conductors closer together than the fit can part. Log the attitude and read it, or hold the sensor level and steady; check its calibration",
+		strings.Join(w.logs, ", "), w.turned, w.groups, ex, w.comp[0], w.comp[1], w.comp[2], w.mag, w.angle)
+}
