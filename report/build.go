@@ -322,6 +322,8 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 	if pairRoute {
 		caveatPartnerSteps(r, fits)
 		caveatTradedSteps(r, fits, ac)
+	} else {
+		caveatNeighbourTrades(r, tracks)
 	}
 	d.SetRoute(r)
 	if d.Route != nil {
