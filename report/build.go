@@ -324,6 +324,7 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 		caveatTradedSteps(r, fits, ac)
 	} else {
 		caveatNeighbourTrades(r, tracks)
+		trackEnds(r, tracks, rs)
 	}
 	d.SetRoute(r)
 	if d.Route != nil {
