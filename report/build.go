@@ -310,6 +310,9 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 	if pairRoute {
 		caveatPartnerSteps(r, fits)
 		caveatTradedSteps(r, fits, ac)
+	} else {
+		caveatNeighbourTrades(r, tracks)
+		trackEnds(r, tracks, rs)
 	}
 	d.SetRoute(r)
 	if d.Route != nil {
