@@ -169,7 +169,9 @@
 // whose levels agree does not bound its neighbours' plateaus; nor does a
 // run whose step goes against the change between its bracketing stations
 // (against), or whose change a more significant neighbour's transition
-// explains (the stations reading a leak's tail; stepFindings). A station
+// explains (the stations reading a leak's tail; stepFindings; a neighbour
+// with one station on a side is judged by its levels fitted across the
+// run too, as the run's bracket cuts its long side short). A station
 // whose misfit is many times the noise measured from its own readings
 // (Station.Noise), against what the route's soundest fits show, counts as
 // poor here whatever the survey's yardstick says, and the shift its misfit
