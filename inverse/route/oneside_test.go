@@ -3,6 +3,7 @@ package route
 import (
 	"math"
 	"math/rand/v2"
+	"strings"
 	"testing"
 )
 
@@ -24,7 +25,7 @@ func TestOneSidedLossSized(t *testing.T) {
 	rng := rand.New(rand.NewPCG(31, 7))
 	const draws = 20
 	for _, l := range []loss{{1.5, 0.5}, {1.5, 1}, {58.5, 0.5}, {58.5, 1}} {
-		var found, size1, size2, located, loc2 int
+		var found, size1, size2, located, loc2, counts int
 		for _, trend := range []float64{0.03, 0, -0.03} {
 			for range draws {
 				r, err := Build(lossStations(rng, 21, 3, 0.011, trend, []loss{l}), nil)
@@ -37,6 +38,14 @@ func TestOneSidedLossSized(t *testing.T) {
 						continue
 					}
 					found++
+					// The lone station is the one level station on its
+					// side of the location reported.
+					if lone := map[bool]string{true: "(1 and ", false: " and 1 stations)"}[l.x < 30]; !strings.Contains(f.Message, lone) {
+						counts++
+						if counts <= 2 {
+							t.Errorf("%+v, trend %g: station counts not %q: %s", l, trend, lone, f.Message)
+						}
+					}
 					z := (-step.Value - l.d) / step.Sigma
 					if math.Abs(z) <= 1 {
 						size1++

@@ -210,6 +210,17 @@ func plateau(u []*Placed, set *Settings, ia, ib, lo, hi int) levels {
 		if m, ok := overValley(pts, xa, xb, sp, f.slope); ok {
 			lv.before, lv.after, lv.sigmaBefore, lv.sigmaAfter = m.before, m.after, m.sigmaBefore, m.sigmaAfter
 			lv.step, lv.sigma, lv.at, lv.atSigma = m.step, m.sigma, m.at, m.atSigma
+			// The stations either side of the location reported (the
+			// best fit's may lie on the lone station: "0 and 10
+			// stations" beside a location of 0.92 m).
+			lv.nBefore, lv.nAfter = 0, 0
+			for _, p := range pts {
+				if p.x < m.at {
+					lv.nBefore++
+				} else {
+					lv.nAfter++
+				}
+			}
 		}
 	}
 	lv.fitted = true
