@@ -151,7 +151,14 @@
 // transition's shape places x_f within the bracket the finding gives that
 // location with its sigma, the profile interval of x_f (profileRange), or
 // a station spacing's sqrt(12) share where the level model misfits its
-// stations (two losses sized as one; levels.misfits). H stays within the grid's range (0.02 to 3
+// stations (two losses sized as one; levels.misfits). A step with a
+// single station on a side (a loss between a route's first two stations
+// or its last two) and three or more on the other is sized instead by
+// averaging over the grid: the levels, the step and x_f are the means over
+// the grid's transitions weighted by their likelihood, exp(-Delta chi^2 /
+// 2s), and their sigmas the weighted spread, for the lone station's level
+// rests on the transition's shape, which chi-square's long valley in
+// (x_f, H) fixes poorly (oneside.go). H stays within the grid's range (0.02 to 3
 // station spacings), the step's sigma is never less than the levels'
 // covariance gives, and a fit in which the trend inflates the step's
 // variance more than maxInflation times (the levels and the slope nearly
@@ -162,7 +169,9 @@
 // whose levels agree does not bound its neighbours' plateaus; nor does a
 // run whose step goes against the change between its bracketing stations
 // (against), or whose change a more significant neighbour's transition
-// explains (the stations reading a leak's tail; stepFindings). A station
+// explains (the stations reading a leak's tail; stepFindings; a neighbour
+// with one station on a side is judged by its levels fitted across the
+// run too, as the run's bracket cuts its long side short). A station
 // whose misfit is many times the noise measured from its own readings
 // (Station.Noise), against what the route's soundest fits show, counts as
 // poor here whatever the survey's yardstick says, and the shift its misfit

@@ -84,13 +84,16 @@ type levels struct {
 	// from the bracketing stations alone), so that current (below)
 	// gives the model's current along the route.
 	fitted bool
+	// curve is the level model's best fit (the levels reported may be
+	// an average over transitions instead, oneside.go).
+	curve lvFit
 }
 
-// current is the level model's current at chainage x (before, after,
-// slope, location and width of the transition; plateau.go).
+// current is the level model's current at chainage x: its best fit's
+// (before, after, slope, location and width of the transition;
+// plateau.go).
 func (l *levels) current(x float64) float64 {
-	f := lvFit{xf: l.at, h: l.width, c: [3]float64{l.before, l.after, l.slope}}
-	return f.at(x)
+	return l.curve.at(x)
 }
 
 // clean reports whether a station's fit is sound enough to set a level.
@@ -200,6 +203,26 @@ func plateau(u []*Placed, set *Settings, ia, ib, lo, hi int) levels {
 	}
 	lv.at, lv.atSigma, lv.width = f.xf, g.atSigma, f.h
 	lv.first, lv.firstFit, lv.spacing = first, firstFit, sp
+	lv.curve = f
+	if oneSided(pts, xa, xb) {
+		// One station on a side: its level rests on the transition's
+		// shape, which the best fit places poorly (oneside.go).
+		if m, ok := overValley(pts, xa, xb, sp, f.slope); ok {
+			lv.before, lv.after, lv.sigmaBefore, lv.sigmaAfter = m.before, m.after, m.sigmaBefore, m.sigmaAfter
+			lv.step, lv.sigma, lv.at, lv.atSigma = m.step, m.sigma, m.at, m.atSigma
+			// The stations either side of the location reported (the
+			// best fit's may lie on the lone station: "0 and 10
+			// stations" beside a location of 0.92 m).
+			lv.nBefore, lv.nAfter = 0, 0
+			for _, p := range pts {
+				if p.x < m.at {
+					lv.nBefore++
+				} else {
+					lv.nAfter++
+				}
+			}
+		}
+	}
 	lv.fitted = true
 	if !finite(lv.step) || !finite(lv.sigma) || !finite(lv.before) || !finite(lv.after) || !finite(lv.atSigma) || !determined(pts, f) {
 		// No sound fit of the levels (too few stations, or a step the

@@ -352,9 +352,6 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64, bs 
 			if n < 0 || n >= len(runs) || across[n] != nil {
 				continue
 			}
-			if pn := size(n); !(pn.z() > z) {
-				continue
-			}
 			first, last := min(n, r), max(n, r)
 			lo, hi := 0, len(u)-1
 			if first > 0 {
@@ -364,11 +361,32 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64, bs 
 				hi = runs[last+1][0]
 			}
 			k := [4]int{runs[n][0], runs[n][1], lo, hi}
-			pl, ok := sized[k]
-			if !ok {
-				pl = plateau(uo, set, runs[n][0], runs[n][1], lo, hi)
-				sized[k] = pl
+			spanning := func() levels {
+				pl, ok := sized[k]
+				if !ok {
+					pl = plateau(uo, set, runs[n][0], runs[n][1], lo, hi)
+					sized[k] = pl
+				}
+				return pl
 			}
+			// The neighbour is the more significant by its own levels.
+			// Or, when it has a single station on a side, by those
+			// fitted across run r, or it is significant so and the
+			// larger step: a loss beside a route's end, its long side
+			// cut short by r's bracket, seemed no step, and the
+			// stations reading its tail, sized as a step from a level
+			// set within the transition, seemed the more significant
+			// (TestEndLossNotDroppedForItsTail).
+			pn := size(n)
+			more := pn.z() > z
+			if !more && (pn.nBefore <= 1 || pn.nAfter <= 1) {
+				pl := spanning()
+				more = pl.z() > z || pl.z() > set.stepK() && math.Abs(pl.step) > math.Abs(pr.step)
+			}
+			if !more {
+				continue
+			}
+			pl := spanning()
 			if !pl.fitted {
 				continue
 			}
