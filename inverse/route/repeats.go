@@ -200,13 +200,11 @@ func combine(use []*Placed) Placed {
 	return c
 }
 
-// alsoText is the text label adds for a combined station's repeats.
+// alsoText is the text label adds for a combined station's repeats:
+// "T13 with day2.csv:T13".
 func alsoText(also []string) string {
 	if len(also) == 0 {
 		return ""
 	}
-	if len(also) == 1 {
-		return " and its repeat " + also[0]
-	}
-	return " and its repeats " + strings.Join(also, ", ")
+	return " with " + strings.Join(also, ", ")
 }

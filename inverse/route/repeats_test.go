@@ -102,7 +102,7 @@ func TestRepeatWalkConfirmsLoss(t *testing.T) {
 		n := 0
 		for _, f := range findings(r, KindCurrentStep) {
 			n++
-			if f.Keys[0] != "T11" || f.Keys[len(f.Keys)-1] != "T12" || !strings.Contains(f.Message, "T11 and its repeat day2:T11") {
+			if f.Keys[0] != "T11" || f.Keys[len(f.Keys)-1] != "T12" || !strings.Contains(f.Message, "T11 with day2:T11") {
 				t.Errorf("seed %d: step %v, want it between T11 and T12 with their repeats: %s", seed, f.Keys, f.Message)
 			}
 			if v, ok := valueNamed(f, "step"); !ok || math.Abs(v.Value+0.5) > 3*v.Sigma {
