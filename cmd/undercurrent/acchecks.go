@@ -423,14 +423,25 @@ func (pl demodPlan) signalHarmonics(freq, win float64) ([]int, string) {
 	}
 	longer := ""
 	if w := pl.harmonicsWindow(freq, win, cand); w > 0 {
-		longer = fmt.Sprintf("; windows of %.3g s or longer fit them all", w)
+		all := "them all"
+		if len(cand) == 1 {
+			all = "it"
+		}
+		longer = fmt.Sprintf("; windows of %.3g s or longer fit %s", w, all)
+	}
+	// The cycles the window's samples hold, as the demodulation's own
+	// warning counts them (0.045 s at 250 Hz holds 11 samples, 2.20
+	// cycles of 50 Hz, not 2.25; the two warnings disagreed).
+	cycles := win * freq
+	if pl.fs > 0 {
+		cycles = math.Round(win*pl.fs) / pl.fs * freq
 	}
 	all := fmt.Sprintf("the variance of the signal's phasor would be %.3g times that without harmonics", fit.All)
 	if math.IsInf(fit.All, 0) || math.IsNaN(fit.All) {
 		all = "the fit's columns would be singular"
 	}
 	return fit.Keep, fmt.Sprintf("in %.4g s windows (%.2f cycles of %g Hz) the signal's %s %s not fitted: over so few cycles the fit can hardly tell %s from the signal's own change across the window, and with the %s fitted %s; %s. A distorted current's %s then %s to the signal's noise%s",
-		win, win*freq, freq, harmonicsPhrase(out), are, it, harmonicsPhrase(cand), all, kept, harmonicsPhrase(out), add, longer)
+		win, cycles, freq, harmonicsPhrase(out), are, it, harmonicsPhrase(cand), all, kept, harmonicsPhrase(out), add, longer)
 }
 
 // harmonicsPhrase names the harmonics h: "2nd harmonic", "3rd and 5th
@@ -451,11 +462,20 @@ func harmonicsPhrase(h []int) string {
 
 // harmonicsWindow is the shortest window, s, longer than win by whole
 // quarter cycles of freq (up to ten cycles more), in which every harmonic
-// of h is fitted (signalHarmonics' rule); 0 when none is.
+// of h is fitted: signalHarmonics' rule, and enough samples for the
+// parameters each window then fits (windowFits). Advised on conditioning
+// alone, 0.05 s windows at 250 Hz sampling were named for the 2nd
+// harmonic of 50 Hz and then held 13 samples for its 12 parameters, too
+// few, so the run left it out after all (found in review). 0 when no
+// window fits them.
 func (pl demodPlan) harmonicsWindow(freq, win float64, h []int) float64 {
 	for j := 1; j <= 40; j++ {
 		w := win + float64(j)*0.25/freq
-		fit, err := calibrate.ConditionedHarmonics(pl.fs, pl.settings(freq, w, h), harmonicInflation)
+		set := pl.settings(freq, w, h)
+		if n, p := pl.windowFits(set); n < p+2 {
+			continue
+		}
+		fit, err := calibrate.ConditionedHarmonics(pl.fs, set, harmonicInflation)
 		if err == nil && len(fit.Keep) == len(h) {
 			return w
 		}
@@ -463,16 +483,51 @@ func (pl demodPlan) harmonicsWindow(freq, win float64, h []int) float64 {
 	return 0
 }
 
+// windowFits returns the samples a window of set.Window holds at the
+// plan's sample rate and the parameters calibrate.Demodulate fits in each
+// window with set (its own count: the signal's cosine and sine and a
+// constant, a linear term with Drift, the signal's change across the
+// window unless ConstantAmplitude, and each harmonic and mains line with
+// its change); Demodulate needs at least two samples more than
+// parameters, to leave residuals to judge the fit by.
+func (pl demodPlan) windowFits(set *calibrate.DemodSettings) (samples, params int) {
+	h := len(set.Harmonics)
+	params = 3 + 2*h
+	if set.Drift {
+		params++
+	}
+	perLine := 2
+	if !set.ConstantAmplitude {
+		params += 4 + 2*h
+		perLine = 4
+	}
+	params += perLine * len(set.Nuisance)
+	return int(math.Round(set.Window * pl.fs)), params
+}
+
 // demodulate demodulates s at freq in windows of win seconds with the
 // signal's harmonics h fitted (settings), or, should that fail (a basis
 // too large for the window's samples), without them, with a warning
-// saying so (before, nothing was said).
+// saying so (before, nothing was said) and, where the window holds too
+// few samples for them, how long a window fits them (harmonicsWindow).
 func (pl demodPlan) demodulate(s *ingest.Samples, freq, win float64, h []int) (*calibrate.DemodResult, error) {
 	res, err := calibrate.Demodulate(s, pl.settings(freq, win, h))
 	if err != nil && len(h) > 0 {
 		if r2, err2 := calibrate.Demodulate(s, pl.settings(freq, win, nil)); err2 == nil {
-			r2.Warnings = append(r2.Warnings, fmt.Sprintf("the signal's %s could not be fitted in %.4g s windows and are not (%s): those of a distorted current add to the signal's noise",
-				harmonicsPhrase(h), win, strings.TrimPrefix(err.Error(), "calibrate: ")))
+			are, it, add := "is", "it", "adds"
+			if len(h) > 1 {
+				are, it, add = "are", "them", "add"
+			}
+			why := "the fit failed with " + it
+			if n, p := pl.windowFits(pl.settings(freq, win, h)); pl.fs > 0 && n < p+2 {
+				why = fmt.Sprintf("the %d samples a window holds at %.4g Hz sampling are too few for the %d parameters fitted with %s (%d at least)", n, pl.fs, p, it, p+2)
+			}
+			longer := ""
+			if w := pl.harmonicsWindow(freq, win, h); w > 0 {
+				longer = fmt.Sprintf("; windows of %.3g s or longer fit %s", w, it)
+			}
+			r2.Warnings = append(r2.Warnings, fmt.Sprintf("in %.4g s windows the signal's %s %s not fitted: %s. A distorted current's %s then %s to the signal's noise%s",
+				win, harmonicsPhrase(h), are, why, harmonicsPhrase(h), add, longer))
 			return r2, nil
 		}
 	}

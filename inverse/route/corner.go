@@ -72,7 +72,8 @@ func bendOrder(st []Station, order []int, set *Settings) {
 	for k, idx := range order {
 		ps[k] = Placed{Station: st[idx], Index: idx}
 	}
-	orient(ps)
+	measure(ps)
+	orient(ps, repeatGap(ps))
 	for _, sp := range cornerSpans(ps, set) {
 		lo, hi := ps[sp.a].Index, ps[sp.b].Index
 		up := lo < hi

@@ -61,6 +61,12 @@
 // fitted groups share one sign convention. For an AC phasor the phase moves
 // by 180 degrees instead.
 //
+// Stations closer along the route than a tenth of its station spacing are
+// repeats of one station (a route walked again, in a log of its own): they
+// take no part in each other's direction, and the steps and the
+// between-station scatter take each set of repeats as one station, their
+// inverse-variance mean (see repeats.go).
+//
 // # Steps in current
 //
 // Between successive usable stations i and i+1 the change in current is

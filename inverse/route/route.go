@@ -28,6 +28,9 @@ type Placed struct {
 	// misfit is RMS over Noise, and misfitRef the route's reference for
 	// it, when strained.
 	misfit, misfitRef float64
+	// also names the repeats of the station combined into this copy of
+	// it for the steps (repeats.go); nil otherwise.
+	also []string
 }
 
 // Route is the result of Build.
@@ -73,14 +76,18 @@ func Build(stations []Station, set *Settings) (*Route, error) {
 		r.Stations[k] = Placed{Station: stations[idx], Index: idx}
 	}
 	measure(r.Stations)
-	orient(r.Stations)
+	gap := repeatGap(r.Stations)
+	orient(r.Stations, gap)
 	cornerChainage(r.Stations, set)
 	r.Length = r.Stations[len(r.Stations)-1].Chainage
 
 	markStrained(r.Stations, set)
 	ends := conductorEnds(r.Stations, set)
-	r.ModelScatter, r.ScatterWidening = modelScatter(outsideBends(r.Stations, set), set)
-	st, notes := steps(r.Stations, set, r.ModelScatter, r.ScatterWidening)
+	// Repeats of a station (a route walked again) are one station for
+	// the steps and the scatter (repeats.go).
+	one := combineRepeats(r.Stations, repeatGap(r.Stations))
+	r.ModelScatter, r.ScatterWidening = modelScatter(outsideBends(one, set), set)
+	st, notes := steps(one, set, r.ModelScatter, r.ScatterWidening)
 	r.Findings = append(r.Findings, st...)
 	r.Findings = append(r.Findings, ends...)
 	r.Findings = append(r.Findings, cover(r.Stations, set)...)
@@ -367,13 +374,15 @@ func twoOpt(st []Station, order []int) {
 // orient makes every station's Dir a unit vector along increasing chainage,
 // adjusting the sign of the current (or the phase for AC) to match.
 // The direction of the route at a station is taken from the stations
-// either side of it whose fits succeeded (see neighbours).
-func orient(ps []Placed) {
+// either side of it whose fits succeeded (see neighbours), passing over
+// its repeats, the stations less than gap from it along the route
+// (repeats.go).
+func orient(ps []Placed, gap float64) {
 	n := len(ps)
 	for k := range ps {
 		var t [2]float64
 		if n > 1 {
-			a, b := neighbours(ps, k)
+			a, b := neighbours(ps, k, gap)
 			t = [2]float64{ps[b].Point[0] - ps[a].Point[0], ps[b].Point[1] - ps[a].Point[1]}
 		}
 		d := ps[k].Dir
@@ -406,14 +415,20 @@ func orient(ps []Placed) {
 // first or last two sound stations for a failed station beyond them. A
 // failed station's point is the centroid of its readings and says nothing
 // of where the conductor runs (see chain). With fewer than two sound
-// stations they are k's immediate neighbours.
-func neighbours(ps []Placed, k int) (a, b int) {
+// stations they are k's immediate neighbours. Stations less than gap
+// from k along the route (its repeats, a walk of the same traverse again)
+// are passed over: their points lie millimetres from k's, and the tangent
+// to them is noise (see repeats.go); a route of repeats alone keeps them.
+func neighbours(ps []Placed, k int, gap float64) (a, b int) {
 	n := len(ps)
 	var g []int
 	for i := range ps {
-		if ps[i].OK {
+		if ps[i].OK && (i == k || math.Abs(ps[i].Chainage-ps[k].Chainage) >= gap) {
 			g = append(g, i)
 		}
+	}
+	if gap > 0 && len(g) < 2 {
+		return neighbours(ps, k, 0)
 	}
 	if len(g) < 2 {
 		return max(k-1, 0), min(k+1, n-1)
@@ -459,9 +474,9 @@ func wrapDeg(a float64) float64 {
 // label names a station for messages: its key, or its input index.
 func label(p *Placed) string {
 	if p.Key != "" {
-		return p.Key
+		return p.Key + alsoText(p.also)
 	}
-	return fmt.Sprintf("#%d", p.Index)
+	return fmt.Sprintf("#%d", p.Index) + alsoText(p.also)
 }
 
 // at names a station with its chainage, or by name alone when it is the
