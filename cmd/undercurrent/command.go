@@ -150,7 +150,45 @@ func printCommands(w io.Writer) {
 }
 
 // run parses args, runs the selected command and returns the exit status.
+// A write to stdout that fails (a full disk under "> run.txt", /dev/full,
+// a closed descriptor) makes a successful run exit with status 1 and say
+// so: before, a command's text (inspect's report, locate's summary,
+// calibrate's statistics, version) was lost with status 0.
 func run(ctx context.Context, args []string, stdout, stderr io.Writer) int {
+	out := &latchWriter{w: stdout}
+	code := runCommand(ctx, args, out, stderr)
+	if out.err != nil && code == 0 {
+		name := "undercurrent"
+		if len(args) > 0 && commands[args[0]] != nil {
+			name += " " + args[0]
+		}
+		fmt.Fprintf(stderr, "%s: writing the output: %v\n", name, out.err)
+		return 1
+	}
+	return code
+}
+
+// latchWriter passes writes to w until one fails, then keeps that error
+// and refuses every later write with it.
+type latchWriter struct {
+	w   io.Writer
+	err error
+}
+
+func (l *latchWriter) Write(p []byte) (int, error) {
+	if l.err != nil {
+		return 0, l.err
+	}
+	n, err := l.w.Write(p)
+	if err == nil && n < len(p) {
+		err = io.ErrShortWrite
+	}
+	l.err = err
+	return n, err
+}
+
+// runCommand is run without the check of the writes to stdout.
+func runCommand(ctx context.Context, args []string, stdout, stderr io.Writer) int {
 	if len(args) == 0 {
 		printCommands(stderr)
 		return 2
