@@ -124,7 +124,8 @@ output NAME; the next run writing NAME removes those untouched for an hour.`
 const exitHelp = `Exit status: 0 on success; 1 on failure (input that cannot be read or
 used, a write that fails); 2 on a usage error: a bad flag, flag value or
 argument, including an output location that cannot be used (an output
-file's directory that does not exist, -o DIR naming a file or a directory
+file's directory that does not exist or cannot be written in, an output
+name that is a symbolic link to nothing, -o DIR naming a file or a directory
 holding files undercurrent did not write, an existing file that simulate or
 convert would replace without --force), found before any work is done.`
 
