@@ -393,6 +393,12 @@ func checkWritableDir(p string) error {
 		if errors.As(err, &pe) {
 			err = pe.Err
 		}
+		if notThere(err) {
+			// The directory is there (checked): a file system that
+			// makes no new entries (/proc) answers "no such file or
+			// directory", which would mislead.
+			return usageErrorf("output directory %s cannot be written in (its file system takes no new files there)", p)
+		}
 		return usageErrorf("output directory %s cannot be written in (%v)", p, err)
 	}
 	os.Remove(probe)

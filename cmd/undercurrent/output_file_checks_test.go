@@ -45,6 +45,14 @@ func TestOutFileUnwritableDirIsUsageError(t *testing.T) {
 			t.Errorf("%s: the message names a temporary file: %q", c.name, errOut)
 		}
 	}
+	// A directory that is there on a file system that makes no new
+	// entries (Linux's /proc/self) is not said to be missing.
+	if fi, err := os.Stat("/proc/self"); err == nil && fi.IsDir() {
+		code, _, errOut := cli(t, "simulate", sc, "-o", "/proc/self/x.csv")
+		if code != 2 || !strings.Contains(errOut, "output directory /proc/self cannot be written in") || strings.Contains(errOut, "no such file") {
+			t.Errorf("-o /proc/self/x.csv: exit %d, stderr %q; want exit 2, not \"no such file\"", code, errOut)
+		}
+	}
 	// Nothing was written beside the refused outputs.
 	for _, n := range []string{"a.csv", "b.csv"} {
 		if _, err := os.Lstat(filepath.Join(dir, n)); err == nil {
