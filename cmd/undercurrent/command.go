@@ -124,7 +124,8 @@ output NAME; the next run writing NAME removes those untouched for an hour.`
 const exitHelp = `Exit status: 0 on success; 1 on failure (input that cannot be read or
 used, a write that fails); 2 on a usage error: a bad flag, flag value or
 argument, including an output location that cannot be used (an output
-file's directory that does not exist, -o DIR naming a file or a directory
+file's directory that does not exist or cannot be written in, an output
+name that is a symbolic link to nothing, -o DIR naming a file or a directory
 holding files undercurrent did not write, an existing file that simulate or
 convert would replace without --force), found before any work is done.`
 
@@ -150,7 +151,45 @@ func printCommands(w io.Writer) {
 }
 
 // run parses args, runs the selected command and returns the exit status.
+// A write to stdout that fails (a full disk under "> run.txt", /dev/full,
+// a closed descriptor) makes a successful run exit with status 1 and say
+// so: before, a command's text (inspect's report, locate's summary,
+// calibrate's statistics, version) was lost with status 0.
 func run(ctx context.Context, args []string, stdout, stderr io.Writer) int {
+	out := &latchWriter{w: stdout}
+	code := runCommand(ctx, args, out, stderr)
+	if out.err != nil && code == 0 {
+		name := "undercurrent"
+		if len(args) > 0 && commands[args[0]] != nil {
+			name += " " + args[0]
+		}
+		fmt.Fprintf(stderr, "%s: writing the output: %v\n", name, out.err)
+		return 1
+	}
+	return code
+}
+
+// latchWriter passes writes to w until one fails, then keeps that error
+// and refuses every later write with it.
+type latchWriter struct {
+	w   io.Writer
+	err error
+}
+
+func (l *latchWriter) Write(p []byte) (int, error) {
+	if l.err != nil {
+		return 0, l.err
+	}
+	n, err := l.w.Write(p)
+	if err == nil && n < len(p) {
+		err = io.ErrShortWrite
+	}
+	l.err = err
+	return n, err
+}
+
+// runCommand is run without the check of the writes to stdout.
+func runCommand(ctx context.Context, args []string, stdout, stderr io.Writer) int {
 	if len(args) == 0 {
 		printCommands(stderr)
 		return 2

@@ -85,6 +85,9 @@ Examples:
 			if err != nil {
 				return err
 			}
+			if err := rf.checkIAGA("IN", in); err != nil {
+				return err
+			}
 			if rf.dropMissing {
 				// Rows are dropped in memory: the log is read whole.
 				s, warns, err := rf.readLog(ctx, in, opts, false)

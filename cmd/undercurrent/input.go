@@ -42,6 +42,41 @@ type readFlags struct {
 	// timeOrder is how time must run through a log: ordered, per-group
 	// or any.
 	timeOrder string
+	// layout lists the flags given (by options) that describe a CSV
+	// log's layout or a log's columns, units and axes, none of which
+	// applies to an IAGA-2002 file (checkIAGA).
+	layout []string
+}
+
+// layoutFlags are the flags of readFlags that an IAGA-2002 file's format
+// fixes for it (its columns, their axes and unit, and its text layout).
+var layoutFlags = []string{"column", "columns", "unit", "units", "frame", "header", "delimiter", "comment", "decimal-comma"}
+
+// checkIAGA refuses, before any work, the layout flags (see layout) for
+// an input that is an IAGA-2002 file, as locate refuses --base-column,
+// --base-unit and --base-frame for an IAGA-2002 base: before, inspect
+// and convert dropped them without a word, and a user who believed a
+// unit or frame fix had been made was told so by silence. Only a regular
+// file is looked at (a pipe's first bytes cannot be read twice).
+func (f *readFlags) checkIAGA(name, path string) error {
+	if len(f.layout) == 0 {
+		return nil
+	}
+	if fi, err := os.Stat(path); err != nil || !fi.Mode().IsRegular() {
+		return nil
+	}
+	if format, _ := logSchema(path); format != ingest.FormatIAGA {
+		return nil
+	}
+	flags := make([]string, len(f.layout))
+	for i, l := range f.layout {
+		flags[i] = "--" + l
+	}
+	verb := "does"
+	if len(flags) > 1 {
+		verb = "do"
+	}
+	return usageErrorf("%s %s not apply to %s %s: it is an IAGA-2002 file, whose format fixes its columns, their axes (its elements) and their unit (nT)", strings.Join(flags, ", "), verb, name, path)
 }
 
 // fieldUnits lists the field units ingest accepts, for help texts.
@@ -75,6 +110,12 @@ func (f *readFlags) addMissing(fs *pflag.FlagSet) {
 // given).
 func (f *readFlags) options(fs *pflag.FlagSet) ([]ingest.Option, error) {
 	changed := func(name string) bool { return fs != nil && fs.Changed(name) }
+	f.layout = nil
+	for _, l := range layoutFlags {
+		if changed(l) {
+			f.layout = append(f.layout, l)
+		}
+	}
 	var opts []ingest.Option
 	f.columns = append(f.columns, f.columnsOld...)
 	f.units = append(f.units, f.unitsOld...)

@@ -69,6 +69,9 @@ Examples:
 			if err != nil {
 				return err
 			}
+			if err := rf.checkIAGA("FILE", args[0]); err != nil {
+				return err
+			}
 			// A log without time (a calibration log, which calibrate
 			// reads) is described too, saying it has none.
 			opts = append(opts, ingest.WithTimeOptional(true))

@@ -2274,7 +2274,8 @@ func writeResults(ctx context.Context, dir string, doc *report.Document, keep []
 	return stageDir(ctx, dir, keep, func(tmp string) error { return writeDocFiles(tmp, doc) })
 }
 
-// checkParentDir refuses an output path whose directory does not exist.
+// checkParentDir refuses an output path whose directory does not exist
+// or cannot be written in.
 // Like every problem with an output location found before the work (see
 // checkOutDir), it is a usage error (exit status 2): the flag's value
 // names a place that cannot be used.
@@ -2289,7 +2290,10 @@ func checkParentDir(path string) error {
 	case !fi.IsDir():
 		return usageErrorf("output directory %s is not a directory", parent)
 	}
-	return nil
+	// A directory that cannot be written in (permissions, a read-only
+	// mount) is found here, before the work, as for -o DIR: before, the
+	// whole job ran and then failed naming a hidden temporary file.
+	return checkWritableDir(parent)
 }
 
 // minStepFraction turns --min-step (per cent, 0 for none) into

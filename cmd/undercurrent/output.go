@@ -80,19 +80,60 @@ func stageLog(path string, r ingest.Reader) (string, error) {
 // stageFile makes a temporary file beside path, named to end in ext,
 // fills it with write (which may replace it whole, as ingest's atomic
 // writers do) and returns its name. On an error nothing is left.
+//
+// An error that names the temporary file (a full disk, a directory made
+// read-only meanwhile) is reported as "PATH: cannot write: REASON", with
+// the output's own name: the temporary name is not one the user gave.
 func stageFile(path, ext string, write func(tmp string) error) (string, error) {
 	f, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".tmp*"+ext)
 	if err != nil {
-		return "", err
+		return "", writeError(path, "", err)
 	}
 	tmp := f.Name()
 	f.Close()
 	if err := write(tmp); err != nil {
 		os.Remove(tmp)
-		return "", err
+		return "", writeError(path, tmp, err)
 	}
 	return tmp, nil
 }
+
+// writeError words a failed write of the output path (staged under the
+// temporary name tmp, "" when it could not be made) as "PATH: cannot
+// write: REASON" when the failure is the file system's (an
+// *os.PathError); other errors (a log that cannot be read, an
+// interruption) are returned as they are, with tmp replaced by path in
+// their text. Interruptions stay recognisable (errors.Is).
+func writeError(path, tmp string, err error) error {
+	var pe *os.PathError
+	if errors.As(err, &pe) && (tmp == "" || pe.Path == tmp || strings.HasPrefix(filepath.Base(pe.Path), "."+filepath.Base(path)+".tmp")) {
+		return &pathWriteError{path: path, err: pe.Err}
+	}
+	if tmp != "" && strings.Contains(err.Error(), tmp) {
+		return &renamedError{msg: strings.ReplaceAll(err.Error(), tmp, path), err: err}
+	}
+	return err
+}
+
+// pathWriteError is a failed write of an output file, named as the user
+// gave it.
+type pathWriteError struct {
+	path string
+	err  error
+}
+
+func (e *pathWriteError) Error() string { return e.path + ": cannot write: " + e.err.Error() }
+func (e *pathWriteError) Unwrap() error { return e.err }
+
+// renamedError is err with its text reworded (msg), still unwrapping to
+// err.
+type renamedError struct {
+	msg string
+	err error
+}
+
+func (e *renamedError) Error() string { return e.msg }
+func (e *renamedError) Unwrap() error { return e.err }
 
 // placeFile renames the temporary file tmp to path. Unless replace is
 // set it never replaces a file: tmp is linked to path, which fails when
@@ -209,8 +250,20 @@ func checkNewFile(name, path string, force bool) error {
 
 // existingOut returns what os.Stat says of an output file path given by
 // name (a flag or argument), nil when it does not exist, and a usage
-// error when it is a directory (what: what to give instead).
+// error when it is a directory (what: what to give instead) or a
+// symbolic link to nothing. Outputs are placed by name, not written
+// through links: a link whose target is missing (a share not mounted, a
+// moved data directory) was taken for no file, and after the whole run
+// the output was refused as "made while this output was being written"
+// (or, with --force, the link was replaced and its target never
+// written).
 func existingOut(name, path, what string) (os.FileInfo, error) {
+	if li, lerr := os.Lstat(path); lerr == nil && li.Mode()&os.ModeSymlink != 0 {
+		if _, err := os.Stat(path); err != nil {
+			target, _ := os.Readlink(path)
+			return nil, usageErrorf("%s %s is a symbolic link to %s, which does not exist: an output is not written through a link (the link would be replaced, and its target not written); give the target's own name, or remove the link", name, path, target)
+		}
+	}
 	fi, err := os.Stat(path)
 	if err != nil {
 		return nil, nil // a new file (checkOutFile has checked its directory)
@@ -339,6 +392,12 @@ func checkWritableDir(p string) error {
 		var pe *os.PathError
 		if errors.As(err, &pe) {
 			err = pe.Err
+		}
+		if notThere(err) {
+			// The directory is there (checked): a file system that
+			// makes no new entries (/proc) answers "no such file or
+			// directory", which would mislead.
+			return usageErrorf("output directory %s cannot be written in (its file system takes no new files there)", p)
 		}
 		return usageErrorf("output directory %s cannot be written in (%v)", p, err)
 	}

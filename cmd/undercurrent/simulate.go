@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"path/filepath"
 	"strconv"
 	"strings"
 
@@ -51,7 +52,7 @@ Examples:
 		setFlags: func(fs *pflag.FlagSet) {
 			fs.StringVarP(&out, "output", "o", "", "write the log to `LOG` (.csv, .arrow, .arrows or .parquet)")
 			fs.StringVar(&baseOut, "base-log", "", "also write the scenario's base-station log to `FILE`")
-			fs.StringVar(&truthOut, "truth", "", "also write where each survey line crosses each conductor (position, depth, current) to CSV `FILE`, to compare with locate's results")
+			fs.StringVar(&truthOut, "truth", "", "also write where each survey line crosses each conductor (position, depth, current) to CSV `FILE` (.csv or .txt), to compare with locate's results")
 			fs.Int64Var(&seed, "seed", 0, "override the scenario's random seed")
 			fs.BoolVar(&force, "force", false, "replace LOG, and the --base-log and --truth files, if they exist (without it an existing file is refused, so that a mistyped name cannot replace a log)")
 		},
@@ -77,6 +78,9 @@ Examples:
 			}
 			outs := [][2]string{{"-o", out}, {"--base-log", baseOut}, {"--truth", truthOut}}
 			if err := checkOutputs(outs, [][2]string{{"SCENARIO", args[0]}}); err != nil {
+				return err
+			}
+			if err := checkTruthExt(truthOut); err != nil {
 				return err
 			}
 			for _, o := range outs {
@@ -161,6 +165,25 @@ Examples:
 			return nil
 		},
 	})
+}
+
+// checkTruthExt refuses, before any work, a --truth name whose extension
+// is not one of CSV's (.csv, .txt, in any case): the truth table is
+// always written as CSV, and before it was written under any name, so
+// that "--truth truth.parquet" beside a Parquet log made a CSV file named
+// .parquet, which tools that go by the extension cannot open.
+func checkTruthExt(path string) error {
+	if path == "" {
+		return nil
+	}
+	switch ext := filepath.Ext(path); strings.ToLower(ext) {
+	case ".csv", ".txt":
+		return nil
+	case "":
+		return usageErrorf("--truth %s: no extension: the truth table is written as CSV; name the file .csv (or .txt)", path)
+	default:
+		return usageErrorf("--truth %s: cannot write %q files: the truth table is written as CSV; name the file .csv (or .txt)", path, ext)
+	}
 }
 
 // span formats the duration of a log.

@@ -4,6 +4,7 @@ import (
 	"encoding"
 	"errors"
 	"fmt"
+	"io/fs"
 	"math"
 	"net"
 	"os"
@@ -13,6 +14,7 @@ import (
 
 	"github.com/BurntSushi/toml"
 
+	"undercurrent/calibrate"
 	"undercurrent/ingest/broker"
 )
 
@@ -276,11 +278,7 @@ func ParseSite(name string, data []byte) (*Site, error) {
 	var s Site
 	md, err := toml.Decode(string(data), &s)
 	if err != nil {
-		var pe toml.ParseError
-		if errors.As(err, &pe) {
-			return nil, fmt.Errorf("live: %s:%d:%d: %s%s", name, pe.Position.Line, pe.Position.Col, startOwner(pe.LastKey, data), pe.Message)
-		}
-		return nil, fmt.Errorf("live: %s: %w", name, err)
+		return nil, decodeError(name, data, err)
 	}
 	if und := md.Undecoded(); len(und) > 0 {
 		keys := make([]string, len(und))
@@ -313,7 +311,45 @@ func ParseSite(name string, data []byte) (*Site, error) {
 	if err := s.validate(); err != nil {
 		return nil, fmt.Errorf("live: %s: %w", name, err)
 	}
+	if err := s.checkCalibrations(data); err != nil {
+		return nil, err
+	}
 	return &s, nil
+}
+
+// checkCalibrations reads every sensor's calibration file, so that one
+// that is missing or bad is found with the site file, before serve starts
+// its broker: before, it was found only when the asset's worker started,
+// after the embedded broker was listening, without the site file's name
+// or line. The error is "SITE:LINE:COL: calibration FILE: cannot read:
+// REASON" (or the calibration reader's own message for a file that is
+// read but is not a calibration).
+func (s *Site) checkCalibrations(data []byte) error {
+	k := 0 // the sensor's place among all [[asset.sensor]] tables
+	for ai := range s.Assets {
+		a := &s.Assets[ai]
+		for si := range a.Sensors {
+			sen := &a.Sensors[si]
+			k++
+			if sen.Calibration == "" {
+				continue
+			}
+			_, err := calibrate.Load(sen.Calibration)
+			if err == nil {
+				continue
+			}
+			where := s.Path
+			if line, col := sensorKey(data, k-1, "calibration"); line > 0 {
+				where = fmt.Sprintf("%s:%d:%d", s.Path, line, col)
+			}
+			var pe *fs.PathError
+			if errors.As(err, &pe) && pe.Path == sen.Calibration {
+				return fmt.Errorf("live: %s: asset %s sensor %s: calibration %s: cannot read: %v", where, a.Name, sen.Name, sen.Calibration, pe.Err)
+			}
+			return fmt.Errorf("live: %s: asset %s sensor %s: calibration: %w", where, a.Name, sen.Name, err)
+		}
+	}
+	return nil
 }
 
 func (s *Site) validate() error {
