@@ -502,31 +502,7 @@ func agrees(r *route.Route, key string, skip map[string]bool, current, sigma flo
 		}
 	}
 	v += tau * tau * (1 + 1/float64(len(cur)))
-	if math.Abs(math.Abs(current)-mean) <= dipoleAgreeK*math.Hypot(sigma, math.Sqrt(v)) {
-		return true
-	}
-	if len(cur) != 2 || tail == nil {
-		return false
-	}
-	// The neighbours are one level, but not the object's: its field may
-	// pull both the same way. A steel drum 1.3 m beside a plain 20 A cable
-	// read 20.32 and 20.30 A at the traverses 2 m either side where the
-	// best fits of its neighbours' readings had found them (the fit of
-	// three lines or more reseeded, inverse fitK), against 20.00 A with
-	// the object, and was refused. Judged again with the object's field
-	// taken out of the neighbours' readings, as above: the refits must not
-	// step between them, each must move its station by no more than
-	// dipoleTailShare of the mean (the tail is small), and the object's
-	// current must agree with their level.
-	c0, s0, ok0 := tail(near[0])
-	c1, s1, ok1 := tail(near[1])
-	if !ok0 || !ok1 || step(c0, s0, c1, s1, math.Max(tau, dipoleTailShare*mean)) ||
-		math.Abs(c0-cur[0]) > dipoleTailShare*mean || math.Abs(c1-cur[1]) > dipoleTailShare*mean {
-		return false
-	}
-	tm := (c0 + c1) / 2
-	tv := (s0*s0+s1*s1)/4 + (c0-c1)*(c0-c1)/4 + tau*tau*1.5
-	return math.Abs(math.Abs(current)-tm) <= dipoleAgreeK*math.Hypot(sigma, math.Sqrt(tv))
+	return math.Abs(math.Abs(current)-mean) <= dipoleAgreeK*math.Hypot(sigma, math.Sqrt(v))
 }
 
 // withoutObject refits the conductors of the group of fits that route
