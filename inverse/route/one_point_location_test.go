@@ -44,16 +44,21 @@ func mainStations(rng *rand.Rand, sigma float64, losses ...loss) []Station {
 // the single loss's). A single loss half way between stations reads no
 // station between the levels, and gets no such words (it is placed by
 // its bracket alone in most draws, as a sharp step between two stations).
+// Current joining either side of T09 gets the same words for a rise.
 func TestOnePointLocationSaysSo(t *testing.T) {
+	const lossWords = "if the loss is one; T09 reads between the levels, which losses spread between T08 and T10 also give"
 	const draws = 60
 	cases := []struct {
 		name   string
 		losses []loss
 		want   bool // the one-point caveat
+		words  string
 	}{
-		{"pair at 85 and 95 m", []loss{{85, 0.2}, {95, 0.2}}, true},
-		{"one loss under T09", []loss{{90, 0.4}}, true},
-		{"one loss at 85 m", []loss{{85, 0.4}}, false},
+		{"pair at 85 and 95 m", []loss{{85, 0.2}, {95, 0.2}}, true, lossWords},
+		{"one loss under T09", []loss{{90, 0.4}}, true, lossWords},
+		{"one loss at 85 m", []loss{{85, 0.4}}, false, lossWords},
+		{"pair joining at 85 and 95 m", []loss{{85, -0.2}, {95, -0.2}}, true,
+			"if the current joins at one point; T09 reads between the levels, which currents joining spread between T08 and T10 also give"},
 	}
 	rng := rand.New(rand.NewPCG(7, 90))
 	for _, c := range cases {
@@ -72,7 +77,7 @@ func TestOnePointLocationSaysSo(t *testing.T) {
 					continue
 				}
 				located++
-				if strings.Contains(f.Message, "if the loss is one; T09 reads between the levels, which losses spread between T08 and T10 also give") {
+				if strings.Contains(f.Message, c.words) {
 					said++
 				}
 				if len(c.losses) == 1 && math.Abs(loc.Value-c.losses[0].x) > 4*loc.Sigma {
