@@ -632,6 +632,14 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64, bs 
 		}
 		if resolved {
 			f.Message += fmt.Sprintf("; most likely at chainage %s m", pm(pl.at, pl.atSigma))
+			if k, ok := spreadStation(u, ia, ib, pl, set); ok {
+				one, many := "the loss is one", "losses"
+				if verb == "rises" {
+					one, many = "the current joins at one point", "currents joining"
+				}
+				f.Message += fmt.Sprintf(" if %s; %s reads between the levels, which %s spread between %s and %s also give",
+					one, label(u[k]), many, label(a), label(b))
+			}
 		}
 		if bd != nil {
 			f.Message += fmt.Sprintf("; measured across the bend between %s and %s from the levels either side of it, as the currents fitted within a bend are biased (the straight-line model misses the turned arm)", bd.a, bd.b)
