@@ -949,8 +949,18 @@ func LeastCover(d *Document) string {
 		return ""
 	}
 	var cands []coverAt
+	var soundRoute *coverAt
 	if s, c, sg, ok := leastCoverOf(d, d.Route); ok {
-		cands = append(cands, coverAt{number: 1, key: s.Key, chainage: s.Chainage, cover: c, sigma: sg, precise: preciseCoverOf(d, d.Route, s)})
+		doubt := ""
+		if !d.Route.PairNet {
+			doubt = routeCoverDoubt(d, d.Route, s)
+		}
+		cands = append(cands, coverAt{number: 1, key: s.Key, chainage: s.Chainage, cover: c, sigma: sg, doubt: doubt, precise: preciseCoverOf(d, d.Route, s)})
+		if doubt != "" {
+			if u, uc, usg, ok := soundCoverOf(d, d.Route); ok {
+				soundRoute = &coverAt{number: 1, key: u.Key, chainage: u.Chainage, cover: uc, sigma: usg, sound: true}
+			}
+		}
 	}
 	n, first := len(cands), 1
 	for i := range d.Conductors {
@@ -990,6 +1000,11 @@ func LeastCover(d *Document) string {
 		cands = append(cands, pair)
 		pairBest = len(cands) - 1
 	}
+	if soundRoute != nil {
+		// Conductor 1's shallowest sound station, the one the doubtful
+		// shallowest is weighed against; it is not one more conductor.
+		cands = append(cands, *soundRoute)
+	}
 	best, sure := -1, -1
 	for i, c := range cands {
 		if best < 0 || c.cover < cands[best].cover {
@@ -1028,10 +1043,18 @@ func LeastCover(d *Document) string {
 		line += ", " + b.doubt
 		if sure >= 0 {
 			o := cands[sure]
-			if o.number == 1 {
+			switch {
+			case o.sound:
+				line += fmt.Sprintf("; at its sound stations (fits not poor, currents agreeing with their neighbours') conductor 1's least cover is %s m at %s (chainage %.0f m)", pm(o.cover, o.sigma), o.key, o.chainage)
+			case o.number == 1:
 				line += fmt.Sprintf("; conductor 1's least cover is %s m at %s (chainage %.0f m)", pm(o.cover, o.sigma), o.key, o.chainage)
-			} else {
+			case b.number == 1:
+				line += fmt.Sprintf("; the least cover elsewhere is %s m, %s", pm(o.cover, o.sigma), o.where())
+			default:
 				line += fmt.Sprintf("; the least cover of the others is %s m, %s", pm(o.cover, o.sigma), o.where())
+			}
+			if b.number == 1 && soundRoute != nil && !o.sound {
+				line += fmt.Sprintf("; at its sound stations conductor 1's least cover is %s m at %s (chainage %.0f m)", pm(soundRoute.cover, soundRoute.sigma), soundRoute.key, soundRoute.chainage)
 			}
 		}
 	}
