@@ -323,6 +323,7 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 		}
 	}
 	d.addTracks(tracks)
+	d.addTrackPhases()
 	d.addCrossings()
 	d.addLoneCover(fits, r, rs, tracks)
 	d.addPairCover(rs)

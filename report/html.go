@@ -1162,14 +1162,15 @@ func trackHeadline(d *Document, t *Track) string {
 	}
 	if len(used) > 0 {
 		a, b := used[0], used[len(used)-1]
-		line += fmt.Sprintf("; %s %s A at %s and %s A at %s", current,
-			pm(a.Current, a.CurrentSigma), a.Key, pm(b.Current, b.CurrentSigma), b.Key)
+		line += fmt.Sprintf("; %s %s A%s at %s and %s A%s at %s", current,
+			pm(a.Current, a.CurrentSigma), stationPhase(a), a.Key, pm(b.Current, b.CurrentSigma), stationPhase(b), b.Key)
 		switch flowAgainst(d, used) {
 		case 1:
 			line += ", flowing the opposite way to conductor 1 (a return path, for example)"
 		case -1:
 			line += ", flowing the same way as conductor 1"
 		}
+		line += trackPhaseClause(t)
 		lo, hi := used[0].Depth, used[0].Depth
 		for _, s := range used {
 			lo, hi = math.Min(lo, s.Depth), math.Max(hi, s.Depth)
