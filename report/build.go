@@ -723,6 +723,16 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute boo
 	default:
 		g.Problem = ambiguity(res.Criteria)
 	}
+	if g.OK {
+		// A further line above the ground: the fit is poor
+		// (furtherAboveGround).
+		if w := furtherAboveGround(res, sensorHeight); w != "" {
+			if g.Problem != "" {
+				g.Problem += "; "
+			}
+			g.Problem += w
+		}
+	}
 	if f.Dipole && g.Problem == "" && f.object == nil {
 		// The caller's verdict, without a fitted object to show for it.
 		g.Problem = "a point dipole explains the readings better than a current"
