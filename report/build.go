@@ -326,6 +326,7 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 		}
 	}
 	d.addTracks(tracks)
+	d.addTrackPhases()
 	d.addCrossings()
 	d.addLoneCover(fits, r, rs, tracks)
 	d.addPairCover(rs)
@@ -744,6 +745,16 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute boo
 		g.Problem = above
 	default:
 		g.Problem = ambiguity(res.Criteria)
+	}
+	if g.OK {
+		// A further line above the ground: the fit is poor
+		// (furtherAboveGround).
+		if w := furtherAboveGround(res, sensorHeight); w != "" {
+			if g.Problem != "" {
+				g.Problem += "; "
+			}
+			g.Problem += w
+		}
 	}
 	if f.Dipole && g.Problem == "" && f.object == nil {
 		// The caller's verdict, without a fitted object to show for it.

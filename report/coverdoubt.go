@@ -20,6 +20,9 @@ type coverAt struct {
 	// precise, when not empty, gives the best determined station beside a
 	// loosely fitted shallowest one (preciseCoverOf): "T06: 0.347 ± 0.005".
 	precise string
+	// sound marks conductor 1's shallowest station among those for which
+	// routeCoverDoubt finds nothing, given beside a doubtful shallowest.
+	sound bool
 }
 
 // where names the station: "conductor 2 at T05 (chainage 20 m along

@@ -525,6 +525,13 @@ type Track struct {
 	// an angle to conductor 1 (the crew report's summary words it so), for
 	// which Offset, a median, means little.
 	Crossing *Crossing `json:"crossing,omitempty"`
+	// PhaseFromConductor1 is, for AC, the phase of this conductor's
+	// current less conductor 1's, degrees in (-180, 180], both taken as
+	// flowing along conductor 1's direction, and its one-sigma
+	// uncertainty: the weighted mean over the groups where both were used
+	// (trackPhase). Nil for DC or when no group has both phases.
+	PhaseFromConductor1      *float64 `json:"phase_from_conductor_1_deg,omitempty"`
+	PhaseFromConductor1Sigma *float64 `json:"phase_from_conductor_1_sigma_deg,omitempty"`
 }
 
 // Crossing is how a further conductor runs at an angle to conductor 1.

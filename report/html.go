@@ -949,8 +949,18 @@ func LeastCover(d *Document) string {
 		return ""
 	}
 	var cands []coverAt
+	var soundRoute *coverAt
 	if s, c, sg, ok := leastCoverOf(d, d.Route); ok {
-		cands = append(cands, coverAt{number: 1, key: s.Key, chainage: s.Chainage, cover: c, sigma: sg, precise: preciseCoverOf(d, d.Route, s)})
+		doubt := ""
+		if !d.Route.PairNet {
+			doubt = routeCoverDoubt(d, d.Route, s)
+		}
+		cands = append(cands, coverAt{number: 1, key: s.Key, chainage: s.Chainage, cover: c, sigma: sg, doubt: doubt, precise: preciseCoverOf(d, d.Route, s)})
+		if doubt != "" {
+			if u, uc, usg, ok := soundCoverOf(d, d.Route); ok {
+				soundRoute = &coverAt{number: 1, key: u.Key, chainage: u.Chainage, cover: uc, sigma: usg, sound: true}
+			}
+		}
 	}
 	n, first := len(cands), 1
 	for i := range d.Conductors {
@@ -990,6 +1000,11 @@ func LeastCover(d *Document) string {
 		cands = append(cands, pair)
 		pairBest = len(cands) - 1
 	}
+	if soundRoute != nil {
+		// Conductor 1's shallowest sound station, the one the doubtful
+		// shallowest is weighed against; it is not one more conductor.
+		cands = append(cands, *soundRoute)
+	}
 	best, sure := -1, -1
 	for i, c := range cands {
 		if best < 0 || c.cover < cands[best].cover {
@@ -1028,10 +1043,18 @@ func LeastCover(d *Document) string {
 		line += ", " + b.doubt
 		if sure >= 0 {
 			o := cands[sure]
-			if o.number == 1 {
+			switch {
+			case o.sound:
+				line += fmt.Sprintf("; at its sound stations (fits not poor, currents agreeing with their neighbours') conductor 1's least cover is %s m at %s (chainage %.0f m)", pm(o.cover, o.sigma), o.key, o.chainage)
+			case o.number == 1:
 				line += fmt.Sprintf("; conductor 1's least cover is %s m at %s (chainage %.0f m)", pm(o.cover, o.sigma), o.key, o.chainage)
-			} else {
+			case b.number == 1:
+				line += fmt.Sprintf("; the least cover elsewhere is %s m, %s", pm(o.cover, o.sigma), o.where())
+			default:
 				line += fmt.Sprintf("; the least cover of the others is %s m, %s", pm(o.cover, o.sigma), o.where())
+			}
+			if b.number == 1 && soundRoute != nil && !o.sound {
+				line += fmt.Sprintf("; at its sound stations conductor 1's least cover is %s m at %s (chainage %.0f m)", pm(soundRoute.cover, soundRoute.sigma), soundRoute.key, soundRoute.chainage)
 			}
 		}
 	}
@@ -1139,14 +1162,15 @@ func trackHeadline(d *Document, t *Track) string {
 	}
 	if len(used) > 0 {
 		a, b := used[0], used[len(used)-1]
-		line += fmt.Sprintf("; %s %s A at %s and %s A at %s", current,
-			pm(a.Current, a.CurrentSigma), a.Key, pm(b.Current, b.CurrentSigma), b.Key)
+		line += fmt.Sprintf("; %s %s A%s at %s and %s A%s at %s", current,
+			pm(a.Current, a.CurrentSigma), stationPhase(a), a.Key, pm(b.Current, b.CurrentSigma), stationPhase(b), b.Key)
 		switch flowAgainst(d, used) {
 		case 1:
 			line += ", flowing the opposite way to conductor 1 (a return path, for example)"
 		case -1:
 			line += ", flowing the same way as conductor 1"
 		}
+		line += trackPhaseClause(t)
 		lo, hi := used[0].Depth, used[0].Depth
 		for _, s := range used {
 			lo, hi = math.Min(lo, s.Depth), math.Max(hi, s.Depth)

@@ -303,11 +303,12 @@ func trackSummary(d *Document, t *Track) string {
 	}
 	if len(used) > 0 {
 		a, b := used[0], used[len(used)-1]
-		line += fmt.Sprintf("; %s %s A at %s and %s A at %s",
-			cur, pm(a.Current, a.CurrentSigma), a.Key, pm(b.Current, b.CurrentSigma), b.Key)
+		line += fmt.Sprintf("; %s %s A%s at %s and %s A%s at %s",
+			cur, pm(a.Current, a.CurrentSigma), stationPhase(a), a.Key, pm(b.Current, b.CurrentSigma), stationPhase(b), b.Key)
 		if !t.Route.PairNet {
 			line += crossingFlow(used)
 		}
+		line += trackPhaseClause(t)
 		lo, hi := used[0].Depth, used[0].Depth
 		for _, s := range used {
 			lo, hi = math.Min(lo, s.Depth), math.Max(hi, s.Depth)

@@ -182,8 +182,33 @@ func alongClause(f *Fit) string {
 		bearing, bearing+180)
 }
 
-// nearSensorProblem returns why a group whose only source is a line within two
-// reading spacings of the lowest sensor is taken as having no current found, or "".
+// nearSensorShare is the share of the readings' horizontal extent within
+// which a lone line under the sensors counts as near them
+// (nearSensorFloor), however closely spaced the readings: at 2000
+// readings a second walking 0.05 m/s two reading spacings are 0.05 mm,
+// so the guard never acted on such a log (found in review).
+const nearSensorShare = 0.01
+
+// nearSensorFloor is the distance under the lowest sensor within which
+// nearSensorProblem judges a lone line: two reading spacings (spacing, the
+// median), or nearSensorShare of the readings' extent in plan (the
+// diagonal of their bounding box), whichever is more.
+func nearSensorFloor(pts [][3]float64, spacing float64) float64 {
+	if len(pts) == 0 {
+		return 2 * spacing
+	}
+	lo, hi := pts[0], pts[0]
+	for _, r := range pts {
+		for k := range 2 {
+			lo[k], hi[k] = math.Min(lo[k], r[k]), math.Max(hi[k], r[k])
+		}
+	}
+	return math.Max(2*spacing, nearSensorShare*math.Hypot(hi[0]-lo[0], hi[1]-lo[1]))
+}
+
+// nearSensorProblem returns why a group whose only source is a line within
+// nearSensorFloor of the lowest sensor (two reading spacings, or a
+// hundredth of the readings' extent) is taken as having no current found, or "".
 // So close, a line's field is that of a few readings, and one fits the noise of some
 // few readings anywhere along the survey: the chance that noise alone gives a
 // current beyond 3 sigma is that of the best of about as many trials as there are
@@ -209,7 +234,8 @@ func nearSensorProblem(f *Fit, res *inverse.Result, ac bool) string {
 	slices.Sort(gaps)
 	spacing := gaps[len(gaps)/2]
 	h := zmin - s.Point[2]
-	if !(spacing > 0) || !(h < 2*spacing) {
+	within := nearSensorFloor(p.Points, spacing)
+	if !(spacing > 0) || !(h < within) {
 		return ""
 	}
 	n := float64(len(p.Points))
@@ -220,8 +246,8 @@ func nearSensorProblem(f *Fit, res *inverse.Result, ac bool) string {
 	if math.Abs(s.Current) > k*s.CurrentSigma {
 		return ""
 	}
-	return fmt.Sprintf("no current found: the line lies %.2g m below the lowest sensor, within two reading spacings (%.2g m), where a line fits the noise of a few readings; noise alone does so beside one or other of the %d readings, so its current, %s A, would have to exceed %.3g sigma (3 sigma's chance over as many places) to be found, and does not: no conductor is detected under this group, and its position and depth mean nothing",
-		h, spacing, len(p.Points), PlusMinus(s.Current, s.CurrentSigma), k)
+	return fmt.Sprintf("no current found: the line lies %.2g m below the lowest sensor, within %.2g m of it (two reading spacings or a hundredth of the readings' extent, whichever is more), where a line fits the noise of a few readings; noise alone does so beside one or other of the %d readings, so its current, %s A, would have to exceed %.3g sigma (3 sigma's chance over as many places) to be found, and does not: no conductor is detected under this group, and its position and depth mean nothing",
+		h, within, len(p.Points), PlusMinus(s.Current, s.CurrentSigma), k)
 }
 
 // aboveGroundProblem returns why the strongest line s of a fit is not a buried

@@ -1,0 +1,39 @@
+package report
+
+import (
+	"fmt"
+
+	"undercurrent/inverse"
+)
+
+// furtherAboveGround returns why a fit is poor when one of its further
+// lines (not the strongest, which aboveGroundProblem judges) lies above
+// the ground given by more than 3 sigma, or "": no buried conductor lies
+// there, so the fit took the line to absorb something the model does not
+// describe. README ("Weak lines") says a line above the ground is a failed
+// fit or a poor one; the rule had been applied to the strongest line only,
+// and on a 2000-reading-a-second DC log corrected with a base station, two
+// traverses kept a second line of 75 µA 0.26 m above the ground (7.9 sigma
+// above), both "sound": the base correction's noise, shared by the 2000
+// readings between two base readings, is not white, and the criterion
+// rewarded a line following its wiggle (found in review). The strongest
+// line is kept; the group is marked poor, so its count and sigmas are
+// used with care.
+func furtherAboveGround(res *inverse.Result, sensorHeight float64) string {
+	for j := 1; j < len(res.Sources); j++ {
+		s := &res.Sources[j]
+		if s.Kind == KindDipole {
+			continue
+		}
+		if _, fail := aboveGroundProblem(res, s, sensorHeight); !fail {
+			continue
+		}
+		ground := 0.0
+		if res.DepthReference != "ReferenceZ" {
+			ground = sensorHeight
+		}
+		return fmt.Sprintf("a further line (%s A) lies %s m above the ground given (over 3 sigma above): no buried conductor lies there, and the fit took it to absorb something else (noise shared by many readings, as a base station's correction leaves on a fast log, or the field of something above the ground), so the number of lines and the sigmas are doubtful",
+			PlusMinus(s.Current, s.CurrentSigma), PlusMinus(ground-s.Depth, s.DepthSigma))
+	}
+	return ""
+}
