@@ -196,6 +196,9 @@ func (o *locateOptions) check(fs *pflag.FlagSet) error {
 	if math.IsNaN(o.referenceZ) || math.IsInf(o.referenceZ, 0) {
 		return usageErrorf("--reference-z %g: want a finite height in metres", o.referenceZ)
 	}
+	if math.IsNaN(o.mountYaw) || math.IsInf(o.mountYaw, 0) {
+		return usageErrorf("--mount-yaw %g: want a finite angle in degrees", o.mountYaw)
+	}
 	o.hasRefZ = fs != nil && fs.Changed("reference-z")
 	if o.hasRefZ && fs.Changed("sensor-height") {
 		return usageErrorf("give --reference-z (depths below the ground at that height) or --sensor-height (depths below the sensors, cover from their height), not both")
@@ -473,6 +476,12 @@ type survey struct {
 	// alerts are warnings that the answer may be wrong (a route fitted
 	// as one line, spikes left in); they come first.
 	alerts []string
+	// baseCheck holds what the comparison with the base record's field
+	// needs once the groups are fitted (basefield.go).
+	baseCheck *baseCheck
+	// swings is the check for a sensor turning within the groups
+	// (sensorturn.go), made once they are fitted.
+	swings *swing
 	// groupWarned is set when a log's group column drew the --group-by
 	// warning (then the span check is not needed).
 	groupWarned bool
@@ -836,22 +845,15 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 	if w := turns.warning(cal); w != "" {
 		sv.alerts = append(sv.alerts, w)
 	}
-	if w := swings.warning(); w != "" {
-		sv.alerts = append(sv.alerts, w)
-	}
-	compared := false
+	sv.swings = &swings
+	// The survey's field against the base record's is compared once the
+	// groups are fitted (baseCheck.warnings): a DC survey's level is the
+	// fits' own backgrounds, which hold no conductor's field.
+	sv.baseCheck = &baseCheck{cal: cal, calPath: o.calibration}
 	if base != nil && !o.coil.on() {
-		var origin *[2]float64
+		sv.baseCheck.base, sv.baseCheck.raw = base, &field
 		if org := doc.Frame.Origin; org != nil {
-			origin = &[2]float64{org.Lat, org.Lon}
-		}
-		var warns []string
-		warns, compared = baseFieldWarnings(o.base, base, &field, origin, cal, o.mountYaw)
-		sv.alerts = append(sv.alerts, warns...)
-	}
-	if cal != nil && !compared {
-		if w := uncheckedCalibrationWarning(o.calibration, cal); w != "" {
-			sv.warnings = append(sv.warnings, w)
+			sv.baseCheck.origin = &[2]float64{org.Lat, org.Lon}
 		}
 	}
 	// Several logs: the groups in time order, not the order of the files
@@ -1671,7 +1673,19 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 			alerts = append(alerts, w)
 		}
 	}
-	head.Warnings = append(head.Warnings, leadWarnings(alerts, sv.warnings)...)
+	if sv.swings != nil {
+		sv.swings.fitted(sv.groups)
+		if w := sv.swings.warning(); w != "" {
+			alerts = append(alerts, w)
+		}
+	}
+	warnings := sv.warnings
+	if sv.baseCheck != nil {
+		a, w := sv.baseCheck.warnings(o, sv)
+		alerts = append(alerts, a...)
+		warnings = append(warnings[:len(warnings):len(warnings)], w...)
+	}
+	head.Warnings = append(head.Warnings, leadWarnings(alerts, warnings)...)
 	if w := travelWarning(sv); w != "" {
 		head.Warnings = append(head.Warnings, w)
 	}
