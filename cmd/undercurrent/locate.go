@@ -1116,24 +1116,42 @@ func zoneShiftHint(base, rover *ingest.Samples) string {
 	if !(bhi > blo) || !(rhi >= rlo) || rlo < 1e8 {
 		return ""
 	}
-	for k := 1; k <= 28; k++ {
-		for _, sign := range []float64{1, -1} {
-			sh := sign * float64(k) * 1800
-			if blo+sh <= rlo && bhi+sh >= rhi {
-				h := float64(k) / 2
-				dir := "later"
-				if sign < 0 {
-					dir = "earlier"
-				}
-				// Local times read as UTC are late by the zone's offset.
-				zone := -sh
-				zs := "+"
-				if zone < 0 {
-					zs, zone = "-", -zone
-				}
-				return fmt.Sprintf("the base record would cover it if its times were %g h %s, a whole number of half hours: are they the local times of a zone UTC%s%02d:%02d written without their offset (and so read as UTC)? If so, write the offset into them (such as %s%s%02d:%02d)",
-					h, dir, zs, int(zone)/3600, int(zone)%3600/60, time.Unix(int64(blo), 0).UTC().Format("2006-01-02T15:04:05"), zs, int(zone)/3600, int(zone)%3600/60)
+	// The civil zones' offsets from UTC, minutes: the whole hours from
+	// -12 to +14 and the zones a part of an hour off (from memory of the
+	// time-zone database: -09:30, -03:30, -02:30, +03:30, +04:30, +05:30,
+	// +05:45, +06:30, +08:45, +09:30, +10:30, +12:45, +13:45). A shift
+	// that no zone has is a clock set wrong, not a zone left out.
+	civil := []int{-570, -210, -150, 210, 270, 330, 345, 390, 525, 570, 630, 765, 825}
+	for h := -12; h <= 14; h++ {
+		if h != 0 {
+			civil = append(civil, 60*h)
+		}
+	}
+	sort.Slice(civil, func(i, j int) bool {
+		a, b := civil[i], civil[j]
+		if a < 0 {
+			a = -a
+		}
+		if b < 0 {
+			b = -b
+		}
+		return a < b || a == b && civil[i] > civil[j]
+	})
+	for _, m := range civil {
+		// Local times read as UTC are late by the zone's offset.
+		sh := -60 * float64(m)
+		if blo+sh <= rlo && bhi+sh >= rhi {
+			h := math.Abs(sh) / 3600
+			dir := "later"
+			if sh < 0 {
+				dir = "earlier"
 			}
+			zs, zone := "+", m
+			if zone < 0 {
+				zs, zone = "-", -zone
+			}
+			return fmt.Sprintf("the base record would cover it if its times were %g h %s, a time zone's offset: are they the local times of a zone UTC%s%02d:%02d written without their offset (and so read as UTC)? If so, write the offset into them (such as %s%s%02d:%02d); times in seconds since 1970 are UTC already, and a shift there is a clock set wrong",
+				h, dir, zs, zone/60, zone%60, time.Unix(int64(blo), 0).UTC().Format("2006-01-02T15:04:05"), zs, zone/60, zone%60)
 		}
 	}
 	return ""
