@@ -54,7 +54,12 @@ const (
 
 // surveyField collects the survey's corrected field, east, north, up, nT,
 // for the comparison with the base record.
-type surveyField struct{ e, n, u []float64 }
+type surveyField struct {
+	e, n, u []float64
+	// fitted is set when the values are the fitted groups' backgrounds
+	// (one a group) rather than readings.
+	fitted bool
+}
 
 // add keeps the finite readings of s (every k-th of a long log).
 func (f *surveyField) add(s *ingest.Samples) {
@@ -125,7 +130,7 @@ func baseDistanceKm(base *ingest.Samples, origin *[2]float64) (float64, bool) {
 // (nil: none), mountYaw the --mount-yaw already applied (the flag's value
 // to suggest is the sum).
 func baseFieldWarnings(basePath string, base *ingest.Samples, f *surveyField, origin *[2]float64, cal *calibrate.Calibration, mountYaw float64) (warns []string, compared bool) {
-	if base == nil || f == nil || len(f.e) < 10 || base.Len() == 0 {
+	if base == nil || f == nil || len(f.e) < 10 && !(f.fitted && len(f.e) > 0) || base.Len() == 0 {
 		return nil, false
 	}
 	if base.Frame == ingest.FrameSensor || calibrate.BaseFrameWarning(base) != "" || base.Meta["horizontal_frame"] == ingest.IAGABaselineKept {
@@ -138,8 +143,37 @@ func baseFieldWarnings(basePath string, base *ingest.Samples, f *surveyField, or
 	}
 	nb, ns := norm(b), norm(s)
 	earth := func(v float64) bool { return v >= calibrate.MinEarthField && v <= calibrate.MaxEarthField }
-	if !earth(nb) || !earth(ns) {
-		return nil, false // a variation record, or a field not in nT
+	if !earth(ns) {
+		return nil, false // a field not in nT
+	}
+	// An observatory's variation record (IAGA-2002 Data Type
+	// "variation") keeps an arbitrary baseline in its vector and a
+	// nominal declination baseline (DECBAS): its direction and |B| are
+	// not the absolute field (BOU20200101vsec.sec: vector |B| 51293 nT,
+	// its own F column 51815 nT). Its F column, from a scalar
+	// magnetometer, is absolute; a vector whose |B| disagrees with the
+	// file's F is taken as not absolute whatever the file calls itself.
+	dataType := strings.TrimSpace(base.Meta["data_type"])
+	nf := math.NaN()
+	if base.F != nil {
+		nf = finiteMedian(base.F)
+	}
+	hasF := earth(nf)
+	absolute := earth(nb) && !strings.HasPrefix(strings.ToLower(dataType), "variation") && !(hasF && math.Abs(nb-nf) > fieldScaleAllow*nf)
+	levelOf := "base record"
+	if !absolute {
+		if !hasF {
+			return nil, false // a variation record with no absolute level
+		}
+		kind := "its vector does not give the absolute field: its |B| differs from its F"
+		if dataType != "" {
+			kind = fmt.Sprintf("its vector is of Data Type %q, whose baseline is not the absolute field", dataType)
+		}
+		levelOf = fmt.Sprintf("base record's F column (its scalar total field; %s, so the field's direction is not compared)", kind)
+		nb = nf
+	}
+	if !absolute && !hasF {
+		return nil, false
 	}
 	km, known := baseDistanceKm(base, origin)
 	if !known {
@@ -153,7 +187,11 @@ func baseFieldWarnings(basePath string, base *ingest.Samples, f *surveyField, or
 	if km > 0.05 {
 		where = fmt.Sprintf("%.1f km from the survey", km)
 	}
-	if angle > allow {
+	what := "the survey's field after the corrections (median"
+	if f.fitted {
+		what = "the survey's field after the corrections (the median of the fitted groups' backgrounds, the conductors' field left out:"
+	}
+	if absolute && angle > allow {
 		// The horizontal direction (declination-like, clockwise from
 		// north) and the dip below the horizontal of each.
 		head := func(v [3]float64) float64 { return math.Atan2(v[0], v[1]) * 180 / math.Pi }
@@ -169,8 +207,8 @@ func baseFieldWarnings(basePath string, base *ingest.Samples, f *surveyField, or
 			steeper = "shallower"
 		}
 		psi, tilt := math.Abs(dh), math.Abs(dd)
-		msg := fmt.Sprintf("the survey's field after the corrections (median east %.0f, north %.0f, up %.0f nT) points %.1f° away from the base record's (%.0f, %.0f, %.0f nT; %s, %s), more than the %.1f° that local anomalies and the distance between them allow: its horizontal direction is turned %.1f° %s (seen from above) and it dips %.1f° %s. The sensor's axes are turned against east, north, up (or the base magnetometer's own are), which a spin calibration cannot see and the fits' sigmas do not include (one field direction cannot part a turn about the vertical from a tilt fully: a tilt across the field also turns its horizontal direction).",
-			s[0], s[1], s[2], angle, b[0], b[1], b[2], basePath, where, allow, psi, side, tilt, steeper)
+		msg := fmt.Sprintf("%s east %.0f, north %.0f, up %.0f nT) points %.1f° away from the base record's (%.0f, %.0f, %.0f nT; %s, %s), more than the %.1f° that local anomalies and the distance between them allow: its horizontal direction is turned %.1f° %s (seen from above) and it dips %.1f° %s. The sensor's axes are turned against east, north, up (or the base magnetometer's own are), which a spin calibration cannot see and the fits' sigmas do not include (one field direction cannot part a turn about the vertical from a tilt fully: a tilt across the field also turns its horizontal direction).",
+			what, s[0], s[1], s[2], angle, b[0], b[1], b[2], basePath, where, allow, psi, side, tilt, steeper)
 		if psi >= 0.5 {
 			msg += fmt.Sprintf(" A turn about the vertical of %.1f° (a magnetometer turned on its pole or mount, a heading reference off) turns every fitted line with it: azimuths off by about %.1f°, plan offsets with them, currents and depths low by 1 - cos %.1f° (%.2f%%); if the magnetometer is turned on its mount, --mount-yaw %.1f turns the readings back.", psi, psi, psi, 100*(1-math.Cos(psi*math.Pi/180)), mountYaw-dh)
 		}
@@ -193,8 +231,12 @@ func baseFieldWarnings(basePath string, base *ingest.Samples, f *surveyField, or
 		default:
 			cause = "the calibration's scale or offsets do not suit this survey, or the base's own level is off"
 		}
-		warns = append(warns, fmt.Sprintf("|B| of the survey after the corrections is %.0f nT (median), %+.2f%% from the %.0f nT of the base record (%s, %s), more than the %.2f%% that local anomalies and the distance between them allow: %s. Currents scale with the sensor's scale (a scale %.2f%% off gives currents %.2f%% off), which the fits' sigmas do not include",
-			ns, 100*d, nb, basePath, where, 100*allowMag, cause, math.Abs(100*d), math.Abs(100*d)))
+		src := ""
+		if f.fitted {
+			src = " of the fitted groups' backgrounds"
+		}
+		warns = append(warns, fmt.Sprintf("|B| of the survey after the corrections is %.0f nT (median)%s, %+.2f%% from the %.0f nT of the %s (%s, %s), more than the %.2f%% that local anomalies and the distance between them allow: %s. Currents scale with the sensor's scale (a scale %.2f%% off gives currents %.2f%% off), which the fits' sigmas do not include",
+			ns, src, 100*d, nb, levelOf, basePath, where, 100*allowMag, cause, math.Abs(100*d), math.Abs(100*d)))
 	}
 	return warns, compared
 }
@@ -209,4 +251,48 @@ func uncheckedCalibrationWarning(path string, cal *calibrate.Calibration) string
 		return ""
 	}
 	return fmt.Sprintf("%s leaves open: %s; no base record's absolute field was there to check the survey's corrected field against (a base log beside the survey, --base, checks its direction to 1° and its |B| to 0.25%%)", path, strings.Join(cv, "; "))
+}
+
+// baseCheck holds what the comparison of the survey's field with the base
+// record's needs until the groups are fitted.
+type baseCheck struct {
+	base    *ingest.Samples // nil: no base record to compare with
+	raw     *surveyField    // the survey's corrected readings
+	origin  *[2]float64
+	cal     *calibrate.Calibration
+	calPath string
+}
+
+// warnings compares the survey's field with the base record's
+// (baseFieldWarnings) once the groups are fitted, and says what the
+// calibration leaves open when nothing could check it. A DC survey's
+// field is each fitted group's background: the readings' median holds the
+// conductors' field, which does not average out (a line's horizontal
+// field has the same sign on both sides of it) and moved it by hundreds
+// of nT over a 25 A line. An AC survey's readings swing about the Earth's
+// field and their median is kept.
+func (c *baseCheck) warnings(o *locateOptions, sv *survey) (alerts, warns []string) {
+	compared := false
+	if c.base != nil {
+		f := c.raw
+		if !sv.ac {
+			f = &surveyField{fitted: true}
+			for _, g := range sv.groups {
+				if g.err != nil || g.res == nil {
+					continue
+				}
+				bg := g.res.Background
+				if finite(bg[0]) && finite(bg[1]) && finite(bg[2]) {
+					f.e, f.n, f.u = append(f.e, bg[0]), append(f.n, bg[1]), append(f.u, bg[2])
+				}
+			}
+		}
+		alerts, compared = baseFieldWarnings(o.base, c.base, f, c.origin, c.cal, o.mountYaw)
+	}
+	if c.cal != nil && !compared {
+		if w := uncheckedCalibrationWarning(c.calPath, c.cal); w != "" {
+			warns = append(warns, w)
+		}
+	}
+	return alerts, warns
 }

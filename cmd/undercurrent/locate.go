@@ -196,6 +196,9 @@ func (o *locateOptions) check(fs *pflag.FlagSet) error {
 	if math.IsNaN(o.referenceZ) || math.IsInf(o.referenceZ, 0) {
 		return usageErrorf("--reference-z %g: want a finite height in metres", o.referenceZ)
 	}
+	if math.IsNaN(o.mountYaw) || math.IsInf(o.mountYaw, 0) {
+		return usageErrorf("--mount-yaw %g: want a finite angle in degrees", o.mountYaw)
+	}
 	o.hasRefZ = fs != nil && fs.Changed("reference-z")
 	if o.hasRefZ && fs.Changed("sensor-height") {
 		return usageErrorf("give --reference-z (depths below the ground at that height) or --sensor-height (depths below the sensors, cover from their height), not both")
@@ -473,6 +476,12 @@ type survey struct {
 	// alerts are warnings that the answer may be wrong (a route fitted
 	// as one line, spikes left in); they come first.
 	alerts []string
+	// baseCheck holds what the comparison with the base record's field
+	// needs once the groups are fitted (basefield.go).
+	baseCheck *baseCheck
+	// swings is the check for a sensor turning within the groups
+	// (sensorturn.go), made once they are fitted.
+	swings *swing
 	// groupWarned is set when a log's group column drew the --group-by
 	// warning (then the span check is not needed).
 	groupWarned bool
@@ -836,22 +845,15 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 	if w := turns.warning(cal); w != "" {
 		sv.alerts = append(sv.alerts, w)
 	}
-	if w := swings.warning(); w != "" {
-		sv.alerts = append(sv.alerts, w)
-	}
-	compared := false
+	sv.swings = &swings
+	// The survey's field against the base record's is compared once the
+	// groups are fitted (baseCheck.warnings): a DC survey's level is the
+	// fits' own backgrounds, which hold no conductor's field.
+	sv.baseCheck = &baseCheck{cal: cal, calPath: o.calibration}
 	if base != nil && !o.coil.on() {
-		var origin *[2]float64
+		sv.baseCheck.base, sv.baseCheck.raw = base, &field
 		if org := doc.Frame.Origin; org != nil {
-			origin = &[2]float64{org.Lat, org.Lon}
-		}
-		var warns []string
-		warns, compared = baseFieldWarnings(o.base, base, &field, origin, cal, o.mountYaw)
-		sv.alerts = append(sv.alerts, warns...)
-	}
-	if cal != nil && !compared {
-		if w := uncheckedCalibrationWarning(o.calibration, cal); w != "" {
-			sv.warnings = append(sv.warnings, w)
+			sv.baseCheck.origin = &[2]float64{org.Lat, org.Lon}
 		}
 	}
 	// Several logs: the groups in time order, not the order of the files
@@ -1114,24 +1116,42 @@ func zoneShiftHint(base, rover *ingest.Samples) string {
 	if !(bhi > blo) || !(rhi >= rlo) || rlo < 1e8 {
 		return ""
 	}
-	for k := 1; k <= 28; k++ {
-		for _, sign := range []float64{1, -1} {
-			sh := sign * float64(k) * 1800
-			if blo+sh <= rlo && bhi+sh >= rhi {
-				h := float64(k) / 2
-				dir := "later"
-				if sign < 0 {
-					dir = "earlier"
-				}
-				// Local times read as UTC are late by the zone's offset.
-				zone := -sh
-				zs := "+"
-				if zone < 0 {
-					zs, zone = "-", -zone
-				}
-				return fmt.Sprintf("the base record would cover it if its times were %g h %s, a whole number of half hours: are they the local times of a zone UTC%s%02d:%02d written without their offset (and so read as UTC)? If so, write the offset into them (such as %s%s%02d:%02d)",
-					h, dir, zs, int(zone)/3600, int(zone)%3600/60, time.Unix(int64(blo), 0).UTC().Format("2006-01-02T15:04:05"), zs, int(zone)/3600, int(zone)%3600/60)
+	// The civil zones' offsets from UTC, minutes: the whole hours from
+	// -12 to +14 and the zones a part of an hour off (from memory of the
+	// time-zone database: -09:30, -03:30, -02:30, +03:30, +04:30, +05:30,
+	// +05:45, +06:30, +08:45, +09:30, +10:30, +12:45, +13:45). A shift
+	// that no zone has is a clock set wrong, not a zone left out.
+	civil := []int{-570, -210, -150, 210, 270, 330, 345, 390, 525, 570, 630, 765, 825}
+	for h := -12; h <= 14; h++ {
+		if h != 0 {
+			civil = append(civil, 60*h)
+		}
+	}
+	sort.Slice(civil, func(i, j int) bool {
+		a, b := civil[i], civil[j]
+		if a < 0 {
+			a = -a
+		}
+		if b < 0 {
+			b = -b
+		}
+		return a < b || a == b && civil[i] > civil[j]
+	})
+	for _, m := range civil {
+		// Local times read as UTC are late by the zone's offset.
+		sh := -60 * float64(m)
+		if blo+sh <= rlo && bhi+sh >= rhi {
+			h := math.Abs(sh) / 3600
+			dir := "later"
+			if sh < 0 {
+				dir = "earlier"
 			}
+			zs, zone := "+", m
+			if zone < 0 {
+				zs, zone = "-", -zone
+			}
+			return fmt.Sprintf("the base record would cover it if its times were %g h %s, a time zone's offset: are they the local times of a zone UTC%s%02d:%02d written without their offset (and so read as UTC)? If so, write the offset into them (such as %s%s%02d:%02d); times in seconds since 1970 are UTC already, and a shift there is a clock set wrong",
+				h, dir, zs, zone/60, zone%60, time.Unix(int64(blo), 0).UTC().Format("2006-01-02T15:04:05"), zs, zone/60, zone%60)
 		}
 	}
 	return ""
@@ -1671,7 +1691,19 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 			alerts = append(alerts, w)
 		}
 	}
-	head.Warnings = append(head.Warnings, leadWarnings(alerts, sv.warnings)...)
+	if sv.swings != nil {
+		sv.swings.fitted(sv.groups)
+		if w := sv.swings.warning(); w != "" {
+			alerts = append(alerts, w)
+		}
+	}
+	warnings := sv.warnings
+	if sv.baseCheck != nil {
+		a, w := sv.baseCheck.warnings(o, sv)
+		alerts = append(alerts, a...)
+		warnings = append(warnings[:len(warnings):len(warnings)], w...)
+	}
+	head.Warnings = append(head.Warnings, leadWarnings(alerts, warnings)...)
 	if w := travelWarning(sv); w != "" {
 		head.Warnings = append(head.Warnings, w)
 	}

@@ -99,7 +99,7 @@ var (
 	dipRE      = regexp.MustCompile(`it dips ([0-9.]+)° (?:steeper|shallower)`)
 	cosRE      = regexp.MustCompile(`low by 1 - cos [0-9.]+° \(([0-9.]+)%\)`)
 	mountYawRE = regexp.MustCompile(`--mount-yaw ([-0-9.]+) turns the readings back`)
-	scaleRE    = regexp.MustCompile(`\|B\| of the survey after the corrections is [0-9]+ nT \(median\), ([-+0-9.]+)% from`)
+	scaleRE    = regexp.MustCompile(`\|B\| of the survey after the corrections is [0-9]+ nT \(median\)[^,]*, ([-+0-9.]+)% from`)
 )
 
 // TestLocateWarnsOfTurnedSensor: the magnetometer turned 20° about the

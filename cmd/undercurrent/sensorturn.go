@@ -22,8 +22,10 @@ import (
 //     taken out, and warns when it is clearly there.
 //   - A sensor that turns (rocks, sways, is turned on its pole) with no
 //     attitude logged, or not applied, turns the Earth's field between
-//     its axes: the components swing by far more than |B| does, which no
-//     conductor's field makes. swingCheck compares them.
+//     its axes: the components swing by far more than |B| does and the
+//     fitted lines do not explain the swing (a conductor's field does the
+//     same where it is at right angles to the Earth's, near the magnetic
+//     equator, but the fits then explain it). swing compares them.
 
 // minOffsetTurnNT is the least turning offset offsetTurnCheck warns
 // about, nT: a tenth of a typical sensor's hard iron (hundreds of nT), and
@@ -265,9 +267,10 @@ func robustScale(x []float64) float64 {
 	return 1.4826 * finiteMedian(d)
 }
 
-// add takes the groups of s, in east, north, up.
+// add notes s, in east, north, up, among the logs checked when it holds
+// a group of Earth-sized field; the groups themselves are checked once
+// they are fitted (fitted).
 func (w *swing) add(path string, s *ingest.Samples) {
-	added := false
 	for _, r := range groupRuns(s) {
 		lo, hi := r[0], r[1]
 		if hi-lo < 20 {
@@ -277,29 +280,74 @@ func (w *swing) add(path string, s *ingest.Samples) {
 		for i := lo; i < hi; i++ {
 			mag = append(mag, math.Sqrt(s.Bx[i]*s.Bx[i]+s.By[i]*s.By[i]+s.Bz[i]*s.Bz[i]))
 		}
+		if f := finiteMedian(mag); f >= calibrate.MinEarthField && f <= calibrate.MaxEarthField {
+			w.logs = append(w.logs, path)
+			return
+		}
+	}
+}
+
+// swingExplained is the share of the components' spread the fitted lines
+// must leave unexplained for a group to count as turned: where the
+// Earth's field is nearly level (near the magnetic equator) a conductor's
+// field, in the plane across the conductor, is largely at right angles to
+// it and swings the components with little change of |B|, as a turn
+// does; but the fitted lines then explain it, and their residuals are
+// the noise. A sensor rocking or turning along the traverse leaves most
+// of its swing in the residuals (no line's field follows it).
+const swingExplained = 0.5
+
+// fitted checks the fitted DC groups: a group turned when its field's
+// components spread by at least minSwingDeg, by more than swingRatio
+// times |B|'s spread, and the fitted lines leave at least swingExplained
+// of that spread in their residuals.
+func (w *swing) fitted(groups []*group) {
+	if len(w.logs) == 0 {
+		return
+	}
+	for _, g := range groups {
+		n := len(g.fields)
+		if n < 20 {
+			continue
+		}
+		mag := make([]float64, n)
+		var c [3][]float64
+		for k := range 3 {
+			c[k] = make([]float64, n)
+		}
+		for i, b := range g.fields {
+			mag[i] = math.Sqrt(b[0]*b[0] + b[1]*b[1] + b[2]*b[2])
+			c[0][i], c[1][i], c[2][i] = b[0], b[1], b[2]
+		}
 		f := finiteMedian(mag)
 		if !(f >= calibrate.MinEarthField && f <= calibrate.MaxEarthField) {
 			continue
 		}
 		w.groups++
-		added = true
-		comp := [3]float64{robustScale(s.Bx[lo:hi]), robustScale(s.By[lo:hi]), robustScale(s.Bz[lo:hi])}
+		comp := [3]float64{robustScale(c[0]), robustScale(c[1]), robustScale(c[2])}
 		sm := robustScale(mag)
 		total := norm(comp)
 		angle := math.Asin(math.Min(1, total/f)) * 180 / math.Pi
-		if angle >= minSwingDeg && total > swingRatio*sm {
-			w.turned++
-			if angle > w.angle {
-				name := ""
-				if s.Group != nil {
-					name = s.Group[lo]
-				}
-				w.name, w.comp, w.mag, w.angle = name, comp, sm, angle
+		if !(angle >= minSwingDeg && total > swingRatio*sm) {
+			continue
+		}
+		if r := g.res; g.err == nil && r != nil && len(r.Residuals) == n {
+			var e [3][]float64
+			for k := range 3 {
+				e[k] = make([]float64, n)
+			}
+			for i, d := range r.Residuals {
+				e[0][i], e[1][i], e[2][i] = d[0], d[1], d[2]
+			}
+			left := norm([3]float64{robustScale(e[0]), robustScale(e[1]), robustScale(e[2])})
+			if left < swingExplained*total {
+				continue // the conductors' own field
 			}
 		}
-	}
-	if added {
-		w.logs = append(w.logs, path)
+		w.turned++
+		if angle > w.angle {
+			w.name, w.comp, w.mag, w.angle = g.key, comp, sm, angle
+		}
 	}
 }
 
@@ -312,6 +360,6 @@ func (w *swing) warning() string {
 	if w.name != "" {
 		ex = "on " + w.name + " the components' spread"
 	}
-	return fmt.Sprintf("%s: the field turned within %d of %d groups rather than changed: its components swing by far more than |B| does (%s is %.0f, %.0f, %.0f nT east, north, up against %.0f nT of |B|, a turn of about %.1f°), which no conductor's field does. The sensor was turning (rocking, swaying or turned on its pole) and its attitude is not logged, not read (a sensor-frame log needs --frame sensor and attitude columns) or not right; the fits take the turned Earth's field for conductors, and the misfit warning may blame conductors closer together than the fit can part. Log the attitude and read it, or hold the sensor level and steady; check its calibration",
+	return fmt.Sprintf("%s: the field turned within %d of %d groups rather than changed: its components swing by far more than |B| does (%s is %.0f, %.0f, %.0f nT east, north, up against %.0f nT of |B|, a turn of about %.1f°) that the fitted lines do not explain. The sensor was turning (rocking, swaying or turned on its pole) and its attitude is not logged, not read (a sensor-frame log needs --frame sensor and attitude columns) or not right; the fits take the turned Earth's field for conductors, and the misfit warning may blame conductors closer together than the fit can part. Log the attitude and read it, or hold the sensor level and steady; check its calibration",
 		strings.Join(w.logs, ", "), w.turned, w.groups, ex, w.comp[0], w.comp[1], w.comp[2], w.mag, w.angle)
 }
