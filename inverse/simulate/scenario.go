@@ -275,7 +275,7 @@ func Parse(data []byte, name string) (*Scenario, error) {
 			if l, c := findKey(data, strings.Join(k[:len(k)-1], "."), -1, k[len(k)-1]); l > 0 {
 				line, col = strconv.Itoa(l), strconv.Itoa(c)
 			}
-			return nil, fmt.Errorf("simulate: %s:%s:%s: key %s: %s", name, line, col, m[2], tomlTypeWords(m[3]))
+			return nil, fmt.Errorf("simulate: %s:%s:%s: key %s: %s", name, line, col, m[2], TOMLWords(m[3]))
 		}
 		return nil, fmt.Errorf("simulate: %s: %w", name, err)
 	}
@@ -651,13 +651,22 @@ func finite(v ...float64) bool {
 
 func norm(v [3]float64) float64 { return math.Sqrt(v[0]*v[0] + v[1]*v[1] + v[2]*v[2]) }
 
-// tomlTypeRE matches the TOML decoder's type mismatch, "incompatible
-// types: TOML value has type string; destination has type float".
-var tomlTypeRE = regexp.MustCompile(`incompatible types: TOML value has type (\w+); destination has type (\w+)`)
+// tomlTypeRE and tomlLengthRE match the TOML decoder's messages for a value
+// of the wrong type ("incompatible types: TOML value has type string;
+// destination has type float") or an array of the wrong length.
+var (
+	tomlTypeRE   = regexp.MustCompile(`incompatible types: TOML value has type (\w+); destination has type (\S+)`)
+	tomlLengthRE = regexp.MustCompile(`expected array length (\d+); got TOML array of length (\d+)`)
+)
 
-// tomlTypeWords rewords the decoder's type mismatch for a scenario's
-// author ("want a number, found a string"); other messages pass unchanged.
-func tomlTypeWords(msg string) string {
+// TOMLWords rewords the TOML decoder's messages for a file's author ("want a
+// number, found a string (in quotes)", "want 3 values, found 2") in place of
+// the library's Go type names; other messages pass unchanged. Scenario files
+// here and the live pipeline's site files (report/live) share it.
+func TOMLWords(msg string) string {
+	if m := tomlLengthRE.FindStringSubmatch(msg); m != nil {
+		return fmt.Sprintf("want %s values, found %s", m[1], m[2])
+	}
 	m := tomlTypeRE.FindStringSubmatch(msg)
 	if m == nil {
 		return msg

@@ -9,6 +9,8 @@ import (
 	"strings"
 
 	"github.com/BurntSushi/toml"
+
+	"undercurrent/inverse/simulate"
 )
 
 // decodeErrRE matches the TOML decoder's errors for a value that does not
@@ -52,13 +54,13 @@ func decodeError(name string, data []byte, err error) error {
 				// message names the value already.
 				return fmt.Errorf("live: %s:%d:%d: %s%s", name, occ.line, occ.col, owner, occ.msg)
 			}
-			return fmt.Errorf("live: %s:%d:%d: %skey %s = %s: %s", name, occ.line, occ.col, owner, key, occ.value, tomlWords(occ.msg))
+			return fmt.Errorf("live: %s:%d:%d: %skey %s = %s: %s", name, occ.line, occ.col, owner, key, occ.value, simulate.TOMLWords(occ.msg))
 		}
 	}
 	if pe.Message != "" {
 		return fmt.Errorf("live: %s:%d:%d: %s%s", name, line, col, owner, pe.Message)
 	}
-	return fmt.Errorf("live: %s:%d:%d: %skey %s: %s", name, line, col, owner, key, tomlWords(msg))
+	return fmt.Errorf("live: %s:%d:%d: %skey %s: %s", name, line, col, owner, key, simulate.TOMLWords(msg))
 }
 
 // keyUse is one line of a site file giving a key: its 1-based line, the
@@ -138,42 +140,6 @@ func failingKey(data []byte, dotted string) (keyUse, bool) {
 		return keyUse{line: n + 1, col: c + 1, value: value, msg: msg, parse: parse}, true
 	}
 	return keyUse{}, false
-}
-
-// tomlTypeRE and tomlLengthRE match the decoder's messages for a value of
-// the wrong type or an array of the wrong length.
-var (
-	tomlTypeRE   = regexp.MustCompile(`incompatible types: TOML value has type (\w+); destination has type (\S+)`)
-	tomlLengthRE = regexp.MustCompile(`expected array length (\d+); got TOML array of length (\d+)`)
-)
-
-// tomlWords rewords the decoder's messages for a site file's author ("want
-// a number, found a string (in quotes)", "want 3 values, found 2") in
-// place of the library's Go type names; other messages pass unchanged.
-func tomlWords(msg string) string {
-	if m := tomlLengthRE.FindStringSubmatch(msg); m != nil {
-		return fmt.Sprintf("want %s values, found %s", m[1], m[2])
-	}
-	m := tomlTypeRE.FindStringSubmatch(msg)
-	if m == nil {
-		return msg
-	}
-	name := func(t string) string {
-		switch {
-		case strings.HasPrefix(t, "float"), strings.HasPrefix(t, "int"), strings.HasPrefix(t, "uint"):
-			return "a number"
-		case t == "string":
-			return "a string (in quotes)"
-		case t == "bool":
-			return "true or false"
-		case strings.HasPrefix(t, "[]"), t == "slice", t == "array":
-			return "a list"
-		case t == "map", t == "struct", strings.HasPrefix(t, "map"):
-			return "a table"
-		}
-		return t
-	}
-	return "want " + name(m[2]) + ", found " + name(m[1])
 }
 
 // sensorKey returns the 1-based line and the column of the value of key
