@@ -35,22 +35,7 @@ func TestSharedMisfitMinority(t *testing.T) {
 			lines = []inverse.Line{{Point: [3]float64{0, 0, -1.8}, Dir: [3]float64{0, 1, 0}}}
 			cur = []float64{10}
 		}
-		var pts, f [][3]float64
-		for j := range 81 {
-			r := [3]float64{-4 + 0.1*float64(j), 0, 0}
-			b := [3]float64{-300, 18000, -46000}
-			for k, l := range lines {
-				v := l.Field(r, cur[k])
-				for a := range 3 {
-					b[a] += 1e9 * v[a]
-				}
-			}
-			for a := range 3 {
-				b[a] += noise * rng.NormFloat64()
-			}
-			pts, f = append(pts, r), append(f, b)
-		}
-		p := &inverse.Problem{Points: pts, Fields: f}
+		p := linesAcross(rng, lines, cur, 0, noise)
 		res, err := inverse.FitLines(p, &inverse.Settings{Count: 1})
 		if err != nil {
 			t.Fatal(err)
@@ -66,4 +51,26 @@ func TestSharedMisfitMinority(t *testing.T) {
 	if w := sharedMisfit(fits, &BuildSettings{MeasuredNoise: noise}, &route.Settings{MaxReducedChi2: 4}); w != "" {
 		t.Errorf("one poor group: warning %q", w)
 	}
+}
+
+// linesAcross returns 81 readings 0.1 m apart across east -4 to 4 m at
+// north y, sensors at height 0: the Biot-Savart field of lines carrying cur
+// amperes (inverse.Line.Field) plus an Earth's field and noise nT per axis.
+func linesAcross(rng *rand.Rand, lines []inverse.Line, cur []float64, y, noise float64) *inverse.Problem {
+	var pts, f [][3]float64
+	for j := range 81 {
+		r := [3]float64{-4 + 0.1*float64(j), y, 0}
+		b := [3]float64{-300, 18000, -46000}
+		for k, l := range lines {
+			v := l.Field(r, cur[k])
+			for a := range 3 {
+				b[a] += 1e9 * v[a]
+			}
+		}
+		for a := range 3 {
+			b[a] += noise * rng.NormFloat64()
+		}
+		pts, f = append(pts, r), append(f, b)
+	}
+	return &inverse.Problem{Points: pts, Fields: f}
 }

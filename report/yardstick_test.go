@@ -26,23 +26,7 @@ func splitTraverse(t *testing.T, rng *rand.Rand, i int, aside, noise float64) Fi
 		lines = append(lines, inverse.Line{Point: [3]float64{1.5, 0, -1.7}, Dir: [3]float64{0, 1, 0}})
 		cur = append(cur, aside)
 	}
-	y := 4 * float64(i)
-	var pts, f [][3]float64
-	for j := range 81 {
-		r := [3]float64{-4 + 0.1*float64(j), y, 0}
-		b := [3]float64{-300, 18000, -46000}
-		for k, l := range lines {
-			v := l.Field(r, cur[k])
-			for a := range 3 {
-				b[a] += 1e9 * v[a]
-			}
-		}
-		for a := range 3 {
-			b[a] += noise * rng.NormFloat64()
-		}
-		pts, f = append(pts, r), append(f, b)
-	}
-	p := &inverse.Problem{Points: pts, Fields: f}
+	p := linesAcross(rng, lines, cur, 4*float64(i), noise)
 	res, err := inverse.FitLines(p, &inverse.Settings{Count: 1})
 	if err != nil {
 		t.Fatal(err)
