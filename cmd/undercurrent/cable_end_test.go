@@ -9,7 +9,7 @@ import (
 // cableEndScenario is a 10 A DC cable 1.0 m down (1.3 m below the
 // sensors) along north under eleven 8 m traverses 5 m apart, from north 2 m
 // (T01) to 52 m (T11), read with 5 nT noise: an invented Harrow Fen
-// substation survey. VERTICES is replaced by the cable's course.
+// substation survey. VERTICES is replaced by the cable's path.
 const cableEndScenario = `name = "cable-end"
 site = "Harrow Fen substation (invented)"
 seed = SEED
@@ -35,7 +35,7 @@ vertices = VERTICES
 current_a = 10
 `
 
-// endsReported simulates the cable course over seeds 1..n and returns the
+// endsReported simulates the cable's path over seeds 1..n and returns the
 // seeds on which locate reports that the conductor ends.
 func endsReported(t *testing.T, vertices string, n int) []int {
 	t.Helper()
