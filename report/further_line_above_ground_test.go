@@ -45,6 +45,9 @@ func TestFurtherLineAboveGroundPoor(t *testing.T) {
 				Point: [3]float64{0.4, 2, -c.depth}}
 			f := noCurrentFixture(nil, cable, extra)
 			f.Result.DepthReference = c.ref
+			// The automatic count chose the two lines (Criteria as FitLines
+			// reports them with Settings.Count 0).
+			f.Result.Criteria = []inverse.ModelScore{{Count: 1}, {Count: 2}}
 			g, st := buildGroup(f, false, 0, 0, false, c.height)
 			said := strings.Contains(g.Problem, "a further line")
 			if !g.OK || !st.OK {
@@ -87,6 +90,38 @@ func TestNearSensorLineOnDenseReadings(t *testing.T) {
 		got := nearSensorProblem(f, f.Result, false) != ""
 		if got != c.noise {
 			t.Errorf("line %g m under the sensors, 4 sigma: taken as noise %v, want %v", c.h, got, c.noise)
+		}
+	}
+}
+
+// TestForcedCountNullLineAboveGroundNotPoor: with the count given
+// (--count, Settings.Count > 0, so FitLines reports no Criteria) a line the
+// readings do not need carries a current within 3 sigma of zero and lands
+// anywhere, above the ground too; the rule above made exact fits poor for
+// it (three-core with --count 4: 3 traverses, single-line with --count 2: 5
+// of 7; found in review). Such a line leaves the fit alone; a line the
+// readings do need (a current over 3 sigma) above the ground still marks
+// it, count given or not.
+func TestForcedCountNullLineAboveGroundNotPoor(t *testing.T) {
+	for _, c := range []struct {
+		current, sigma float64
+		poor           bool
+	}{
+		{2e-4, 5e-4, false},
+		{-1.2e-3, 5e-4, false},
+		{0.8, 0.05, true},
+	} {
+		cable := inverse.SourceEstimate{Current: 25.0003, CurrentSigma: 0.0005, Depth: 1.1, DepthSigma: 3e-5,
+			Point: [3]float64{0, 2, -1.1}}
+		extra := inverse.SourceEstimate{Current: c.current, CurrentSigma: c.sigma, Depth: -0.4, DepthSigma: 0.05,
+			Point: [3]float64{0.4, 2, 0.4}}
+		f := noCurrentFixture(nil, cable, extra)
+		f.Result.DepthReference = "ReferenceZ"
+		f.Result.Criteria = nil
+		g, _ := buildGroup(f, false, 0, 0, false, 0)
+		if said := strings.Contains(g.Problem, "a further line"); said != c.poor {
+			t.Errorf("forced count, further line of %g ± %g A 0.4 m above the ground: problem %q; want it poor %v",
+				c.current, c.sigma, g.Problem, c.poor)
 		}
 	}
 }
