@@ -175,3 +175,34 @@ func TestMountYawNotFinite(t *testing.T) {
 		}
 	}
 }
+
+// TestBaseCheckUncalibratedNamesCalibration: Kestrel Moor's sensor
+// (testdata/scenarios/kestrel-moor-step.toml: hard iron 310, -240, 180 nT
+// and an off-diagonal soft-iron matrix, no mount turned) located without
+// --calibration reads the field turned from the base's, as uncorrected
+// offsets and soft iron do; the warning had offered --mount-yaw as the
+// remedy, which made the azimuths worse (found in review). With no
+// calibration given it names calibrating first and offers --mount-yaw only
+// for a log already corrected.
+func TestBaseCheckUncalibratedNamesCalibration(t *testing.T) {
+	_, path := scenario(t, "kestrel-moor-step.toml")
+	dir := t.TempDir()
+	log, base := filepath.Join(dir, "log.csv"), filepath.Join(dir, "base.csv")
+	mustCLI(t, "simulate", "--seed", "1", path, "-o", log, "--base-log", base)
+	doc := locateGrouped(t, "--reference-z", "0", "--base", base, log)
+	var turn string
+	for _, w := range doc.Warnings {
+		if strings.Contains(w, "away from the base record") {
+			turn = w
+		}
+	}
+	if turn == "" {
+		t.Skipf("no direction warning on this draw: %q", doc.Warnings)
+	}
+	if !strings.Contains(turn, "No --calibration was given") || !strings.Contains(turn, "calibrate it first") {
+		t.Errorf("an uncalibrated sensor's turn does not name the calibration: %q", turn)
+	}
+	if strings.Contains(turn, "--mount-yaw") && !strings.Contains(turn, "if the log is already corrected") {
+		t.Errorf("--mount-yaw offered as the remedy for an uncalibrated sensor: %q", turn)
+	}
+}

@@ -209,8 +209,20 @@ func baseFieldWarnings(basePath string, base *ingest.Samples, f *surveyField, or
 		psi, tilt := math.Abs(dh), math.Abs(dd)
 		msg := fmt.Sprintf("%s east %.0f, north %.0f, up %.0f nT) points %.1f° away from the base record's (%.0f, %.0f, %.0f nT; %s, %s), more than the %.1f° that local anomalies and the distance between them allow: its horizontal direction is turned %.1f° %s (seen from above) and it dips %.1f° %s. The sensor's axes are turned against east, north, up (or the base magnetometer's own are), which a spin calibration cannot see and the fits' sigmas do not include (one field direction cannot part a turn about the vertical from a tilt fully: a tilt across the field also turns its horizontal direction).",
 			what, s[0], s[1], s[2], angle, b[0], b[1], b[2], basePath, where, allow, psi, side, tilt, steeper)
+		if cal == nil {
+			// Uncorrected offsets and soft iron turn the field as well
+			// (Kestrel Moor's sensor, 310/-240/180 nT of offset and an
+			// off-diagonal soft-iron matrix, read 1.8° with no mount
+			// turned, and the --mount-yaw offered made the azimuths worse;
+			// with its spin calibration no warning: found in review).
+			msg += " No --calibration was given: a sensor's uncorrected offsets and soft iron turn the field too, so calibrate it first (calibrate --spin) unless the log is already corrected; a turn left after calibration is the mount's or the attitude's."
+		}
 		if psi >= 0.5 {
-			msg += fmt.Sprintf(" A turn about the vertical of %.1f° (a magnetometer turned on its pole or mount, a heading reference off) turns every fitted line with it: azimuths off by about %.1f°, plan offsets with them, currents and depths low by 1 - cos %.1f° (%.2f%%); if the magnetometer is turned on its mount, --mount-yaw %.1f turns the readings back.", psi, psi, psi, 100*(1-math.Cos(psi*math.Pi/180)), mountYaw-dh)
+			yaw := fmt.Sprintf("if the magnetometer is turned on its mount, --mount-yaw %.1f turns the readings back.", mountYaw-dh)
+			if cal == nil {
+				yaw = fmt.Sprintf("if the log is already corrected and the magnetometer is turned on its mount, --mount-yaw %.1f turns the readings back.", mountYaw-dh)
+			}
+			msg += fmt.Sprintf(" A turn about the vertical of %.1f° (a magnetometer turned on its pole or mount, a heading reference off) turns every fitted line with it: azimuths off by about %.1f°, plan offsets with them, currents and depths low by 1 - cos %.1f° (%.2f%%); %s", psi, psi, psi, 100*(1-math.Cos(psi*math.Pi/180)), yaw)
 		}
 		if tilt >= 0.5 {
 			msg += fmt.Sprintf(" A tilt of %.1f° (a leaning pole, an attitude reference off) turns the field into components no line gives: plan offsets off, currents scattered, perhaps a phantom return line.", tilt)
