@@ -183,6 +183,9 @@ Examples:
 			var span float64             // the time the spin log spans, s (spinDriftNote)
 			var where func(j int) string // names reading j of the last log read
 			read := func(role, path string) ([][3]float64, calibrate.Input, error) {
+				if err := rf.checkIAGA("--"+role, path); err != nil {
+					return nil, calibrate.Input{}, err
+				}
 				// A zero-field log is near zero by design: no unit check.
 				r, in, w, err := readCalibrationLog(ctx, &rf, opts, role, path, role != "zero", &sensor, &span, stderr)
 				where = w

@@ -51,3 +51,48 @@ func TestIAGALayoutFlagsRefused(t *testing.T) {
 		t.Errorf("inspect --frame enu on CSV: exit %d: %s", code, errOut)
 	}
 }
+
+// TestIAGALayoutFlagsRefusedEverywhere: the layout flags are refused for
+// an IAGA-2002 file given to locate, calibrate or replay as well, before
+// any work (exit 2; replay before it connects to any broker), as for
+// inspect and convert. locate refuses them only when every log is an
+// IAGA-2002 file: in a run that mixes formats they describe the other
+// logs, and the run goes on to its next check. An IAGA-2002 record given
+// to locate as a survey log is named as one, with --base as the way to
+// use it (before, it was told to map positions with --column, which the
+// format refuses). The input is a real INTERMAGNET file (Boulder,
+// November 2014).
+func TestIAGALayoutFlagsRefusedEverywhere(t *testing.T) {
+	iaga := ingestIAGA(t, "bou20141101vmin.min")
+	other := ingestIAGA(t, "bou20141102vmin.min")
+	dir := t.TempDir()
+	for _, c := range []struct {
+		args  []string
+		named string
+	}{
+		{[]string{"locate", "--unit", "bx=uT", iaga}, "--unit does not apply to LOG " + iaga + ": it is an IAGA-2002 file"},
+		{[]string{"locate", "--frame", "ned", iaga, other}, "--frame does not apply to LOGs " + iaga + " and 1 other: every one is an IAGA-2002 file"},
+		{[]string{"calibrate", "--spin", iaga, "--column", "bx=X", "-o", filepath.Join(dir, "cal.json")}, "--column does not apply to --spin " + iaga},
+		{[]string{"replay", iaga, "--asset", "fenwick-lane", "--unit", "bx=uT", "--broker", "nats://127.0.0.1:1", "--wait", "1s"}, "--unit does not apply to LOG " + iaga},
+	} {
+		code, stdout, errOut := cli(t, c.args...)
+		if code != 2 || !strings.Contains(errOut, c.named) || stdout != "" {
+			t.Errorf("%v: exit %d, stdout %q, stderr %q; want exit 2 and %q", c.args, code, stdout, errOut, c.named)
+		}
+	}
+	if _, err := os.Lstat(filepath.Join(dir, "cal.json")); err == nil {
+		t.Error("a refused calibrate wrote its output")
+	}
+	// A mixed run: the flag describes the CSV log, so it is not refused
+	// for the IAGA-2002 one (the run then stops at the record's missing
+	// positions, named as an observatory record).
+	sc := filepath.Join("..", "..", "testdata", "scenarios", "single-line.toml")
+	csv := filepath.Join(dir, "line.csv")
+	if code, _, errOut := cli(t, "simulate", sc, "-o", csv); code != 0 {
+		t.Fatalf("simulate: exit %d: %s", code, errOut)
+	}
+	code, _, errOut := cli(t, "locate", "--frame", "enu", csv, iaga)
+	if code != 1 || strings.Contains(errOut, "does not apply") || !strings.Contains(errOut, "it is an IAGA-2002 observatory record, which is read as a base station (--base") {
+		t.Errorf("locate --frame enu CSV IAGA: exit %d, stderr %q; want exit 1 naming the record as a base station's", code, errOut)
+	}
+}

@@ -59,14 +59,25 @@ var layoutFlags = []string{"column", "columns", "unit", "units", "frame", "heade
 // unit or frame fix had been made was told so by silence. Only a regular
 // file is looked at (a pipe's first bytes cannot be read twice).
 func (f *readFlags) checkIAGA(name, path string) error {
-	if len(f.layout) == 0 {
+	return f.checkIAGAAll(name, []string{path})
+}
+
+// checkIAGAAll is checkIAGA for a command reading several logs (locate):
+// the layout flags are refused only when every log is an IAGA-2002 file,
+// since in a run that mixes formats they describe the other logs. name
+// names the argument, path the first log in the message.
+func (f *readFlags) checkIAGAAll(name string, paths []string) error {
+	if len(f.layout) == 0 || len(paths) == 0 {
 		return nil
 	}
-	if fi, err := os.Stat(path); err != nil || !fi.Mode().IsRegular() {
-		return nil
+	for _, p := range paths {
+		if !isIAGAFile(p) {
+			return nil
+		}
 	}
-	if format, _ := logSchema(path); format != ingest.FormatIAGA {
-		return nil
+	what := fmt.Sprintf("%s %s: it is an IAGA-2002 file, whose format fixes its columns, their axes (its elements) and their unit (nT)", name, paths[0])
+	if len(paths) > 1 {
+		what = fmt.Sprintf("%ss %s and %s: every one is an IAGA-2002 file, whose format fixes its columns, their axes (its elements) and their unit (nT)", name, paths[0], plural(len(paths)-1, "other"))
 	}
 	flags := make([]string, len(f.layout))
 	for i, l := range f.layout {
@@ -76,7 +87,18 @@ func (f *readFlags) checkIAGA(name, path string) error {
 	if len(flags) > 1 {
 		verb = "do"
 	}
-	return usageErrorf("%s %s not apply to %s %s: it is an IAGA-2002 file, whose format fixes its columns, their axes (its elements) and their unit (nT)", strings.Join(flags, ", "), verb, name, path)
+	return usageErrorf("%s %s not apply to %s", strings.Join(flags, ", "), verb, what)
+}
+
+// isIAGAFile tells whether path is a regular file in the IAGA-2002 format.
+// A pipe or a missing file is not looked at (a pipe's first bytes cannot
+// be read twice; a missing file is reported by the reader).
+func isIAGAFile(path string) bool {
+	if fi, err := os.Stat(path); err != nil || !fi.Mode().IsRegular() {
+		return false
+	}
+	format, _ := logSchema(path)
+	return format == ingest.FormatIAGA
 }
 
 // fieldUnits lists the field units ingest accepts, for help texts.

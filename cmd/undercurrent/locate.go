@@ -375,6 +375,9 @@ Examples:
 			if o.readOpts, err = o.read.options(fs); err != nil {
 				return err
 			}
+			if err := o.read.checkIAGAAll("LOG", args); err != nil {
+				return err
+			}
 			o.baseOpts = o.read.baseOptions(fs)
 			start := time.Now()
 			// On a terminal, a stage line until the fitting's bar (if
@@ -679,6 +682,11 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			}
 		}
 		if s.X == nil || s.Y == nil || s.Z == nil {
+			if isIAGAFile(path) {
+				// An observatory's record holds no positions, and
+				// --column does not apply to it (checkIAGA).
+				return nil, fmt.Errorf("%s has no positions: it is an IAGA-2002 observatory record, which is read as a base station (--base %s), not as a survey log", path, path)
+			}
 			return nil, fmt.Errorf("%s has no positions: locate needs x, y, z (or lat, lon, height) columns; map them with --column", path)
 		}
 		if err := checkPositionsRead(path, s); err != nil {

@@ -232,6 +232,9 @@ func replayBatches(ctx context.Context, o *replayOptions, fs *pflag.FlagSet, pat
 	if err != nil {
 		return nil, nil, err
 	}
+	if err := o.read.checkIAGA("LOG", path); err != nil {
+		return nil, nil, err
+	}
 	order := ingest.TimeOrderedPerGroup
 	if fs != nil && fs.Changed("time-order") {
 		order, _ = ingest.ParseTimeOrder(o.read.timeOrder) // checked by options
