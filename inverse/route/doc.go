@@ -18,6 +18,8 @@
 //     current), are left out of the profile and the end is reported, with
 //     the current and depth before it fitted allowing for the share of the
 //     end's field the stations approaching it miss (ends.go, endbefore.go);
+//     for the steps those stations read their current divided by that
+//     share, when the share explains them (endshare.go);
 //   - cover shallower than a minimum the caller names;
 //   - stations whose fit is poor or ambiguous; when the sound stations
 //     either side (within three) differ in direction by 10 degrees or more

@@ -34,6 +34,16 @@ import (
 type beforeEnd struct {
 	current, currentSigma, depth, depthSigma float64
 	fitted                                   bool
+	// t and h are the best fit's place of the end past the last station
+	// before it and the share's width, and within the (t, h) of the grid
+	// points inside the current's profile interval; reach is the distance
+	// from the last station before the end to the farthest station the fit
+	// used (see endShares).
+	t, h, reach float64
+	within      [][2]float64
+	// chi2 is the best fit's chi-square of the currents, over n stations.
+	chi2 float64
+	n    int
 }
 
 // text says what the fit of the levels before the end gives.
@@ -49,6 +59,11 @@ func (b beforeEnd) text() string {
 // stations, or none with sigmas, it returns the reference's median and
 // spread.
 func endBefore(ps []Placed, idx []int, start int, set *Settings, ref endRefOf) beforeEnd {
+	return endFit(ps, idx, start, set, ref, math.Inf(1))
+}
+
+// endFit is endBefore with the share's width H at most hmax.
+func endFit(ps []Placed, idx []int, start int, set *Settings, ref endRefOf, hmax float64) beforeEnd {
 	out := beforeEnd{current: ref.current, currentSigma: ref.currentSpread, depth: ref.depth, depthSigma: ref.depthSpread}
 	a, b := &ps[idx[start-1]], &ps[idx[start]]
 	gap := math.Abs(b.Chainage - a.Chainage)
@@ -66,7 +81,7 @@ func endBefore(ps []Placed, idx []int, start int, set *Settings, ref endRefOf) b
 		return out
 	}
 	type point struct {
-		i0, v, chi2, d0, d0var, dchi2 float64
+		i0, v, chi2, d0, d0var, dchi2, t, h float64
 	}
 	frac := make([]float64, n)
 	fit := func(t, h float64) point {
@@ -127,7 +142,11 @@ func endBefore(ps []Placed, idx []int, start int, set *Settings, ref endRefOf) b
 			if j > 0 {
 				h = minWidth * sp * math.Pow(maxWidth/minWidth, float64(j-1)/(gridH-2))
 			}
+			if h > hmax {
+				continue
+			}
 			q := fit(t, h)
+			q.t, q.h = t, h
 			if !finite(q.i0) || !finite(q.chi2) || !finite(q.d0) || !finite(q.d0var) {
 				continue
 			}
@@ -147,10 +166,12 @@ func endBefore(ps []Placed, idx []int, start int, set *Settings, ref endRefOf) b
 	}
 	lim := q.chi2 + scale
 	var cs, ds float64
+	var within [][2]float64
 	for _, p := range pts {
 		if p.chi2 > lim {
 			continue
 		}
+		within = append(within, [2]float64{p.t, p.h})
 		hw := math.Sqrt((lim - p.chi2) * p.v)
 		cs = math.Max(cs, math.Max(p.i0+hw-q.i0, q.i0-(p.i0-hw)))
 		ds = math.Max(ds, math.Abs(p.d0-q.d0))
@@ -160,7 +181,8 @@ func endBefore(ps []Placed, idx []int, start int, set *Settings, ref endRefOf) b
 	far := st[n-1]
 	cs = math.Hypot(cs, endShareError*(q.i0-math.Abs(far.Current)))
 	dsig := math.Hypot(math.Max(ds, math.Sqrt(q.d0var)), endShareError*(q.d0-far.Depth))
-	return beforeEnd{current: q.i0, currentSigma: cs, depth: q.d0, depthSigma: dsig, fitted: true}
+	return beforeEnd{current: q.i0, currentSigma: cs, depth: q.d0, depthSigma: dsig, fitted: true,
+		t: q.t, h: q.h, reach: math.Abs(a.Chainage - far.Chainage), within: within, chi2: q.chi2, n: n}
 }
 
 // endShareError is the fraction of the correction made by the end's share

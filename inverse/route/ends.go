@@ -252,6 +252,7 @@ func endOf(ps []Placed, idx []int, set *Settings) (Finding, bool) {
 		weaker = fmt.Sprintf(" and weaker (%.3g A)", clo)
 	}
 	before := endBefore(ps, idx, start, set, ref)
+	markShares(ps, idx, start, set, endFit(ps, idx, start, set, ref, endShareMaxWidth*ref.depth))
 	return Finding{
 		Kind:     KindCurrentStep,
 		Severity: SeverityWarning,

@@ -28,6 +28,10 @@ type Placed struct {
 	// misfit is RMS over Noise, and misfitRef the route's reference for
 	// it, when strained.
 	misfit, misfitRef float64
+	// endShare is the share of the line's field the station reads before
+	// a named end, and endShareSigma its sigma; zero when it reads the
+	// whole (endshare.go).
+	endShare, endShareSigma float64
 	// also names the repeats of the station combined into this copy of
 	// it for the steps (repeats.go); nil otherwise.
 	also []string
@@ -86,6 +90,8 @@ func Build(stations []Station, set *Settings) (*Route, error) {
 	// Repeats of a station (a route walked again) are one station for
 	// the steps and the scatter (repeats.go).
 	one := combineRepeats(r.Stations, repeatGap(r.Stations))
+	// Stations before a named end read its share of the field (endshare.go).
+	one = endCorrected(one)
 	r.ModelScatter, r.ScatterWidening = modelScatter(outsideBends(one, set), set)
 	st, notes := steps(one, set, r.ModelScatter, r.ScatterWidening)
 	r.Findings = append(r.Findings, st...)
