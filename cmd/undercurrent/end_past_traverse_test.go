@@ -54,13 +54,19 @@ func endFindings(doc *resultDoc) (end []docFinding, changes []docFinding) {
 // TestEndPastTraverseNoFalseFall: with the end named between T08 and T09,
 // the stations before it read its share of the field and must not give a
 // change of current, on 10 seeds; before, a "current falls by 1.6-2.0 A"
-// between T06 or T07 and T08 came on every seed.
+// between T06 or T07 and T08 came on every seed. The end's finding names
+// the stations corrected for its share (up to T08), where a loss could
+// not be told from the end.
 func TestEndPastTraverseNoFalseFall(t *testing.T) {
 	for seed := 1; seed <= 10; seed++ {
 		doc := openLocate(t, "end-past-traverse.toml", seed, "")
 		end, changes := endFindings(doc)
 		if len(end) != 1 {
 			t.Errorf("seed %d: %d end findings, want 1", seed, len(end))
+		} else if !strings.Contains(end[0].Message, "T08 read") || !strings.Contains(end[0].Message, "cannot be told from the end itself") {
+			// The stations corrected for the end's share are named: a
+			// loss among them would be taken in by the share.
+			t.Errorf("seed %d: the end finding does not name the stations corrected for its share: %s", seed, end[0].Message)
 		}
 		for _, f := range changes {
 			t.Errorf("seed %d: false change of current before the end: %s", seed, f.Message)

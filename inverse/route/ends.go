@@ -252,7 +252,7 @@ func endOf(ps []Placed, idx []int, set *Settings) (Finding, bool) {
 		weaker = fmt.Sprintf(" and weaker (%.3g A)", clo)
 	}
 	before := endBefore(ps, idx, start, set, ref)
-	markShares(ps, idx, start, set, endFit(ps, idx, start, set, ref, endShareMaxWidth*ref.depth))
+	shared := markShares(ps, idx, start, set, endFit(ps, idx, start, set, ref, endShareMaxWidth*ref.depth))
 	return Finding{
 		Kind:     KindCurrentStep,
 		Severity: SeverityWarning,
@@ -260,8 +260,8 @@ func endOf(ps []Placed, idx []int, set *Settings) (Finding, bool) {
 		To:       second.Chainage,
 		Position: mid(a.Point, b.Point),
 		Keys:     keys,
-		Message: fmt.Sprintf("the conductor appears to end, or its current to leave it, between %s (chainage %.1f m) and %s (%.1f m): beyond, the fits find only lines far deeper (%s deep)%s than the %.3g m and %.3g A of the sound stations before, the field past a conductor's end; those stations are left out of the current and cover profile (an end of the survey's conductor at an earth electrode, a fault or a joint to something else; check where it goes); %s",
-			label(first), first.Chainage, label(second), second.Chainage, depthRange, weaker, ref.depth, ref.current, before.text()),
+		Message: fmt.Sprintf("the conductor appears to end, or its current to leave it, between %s (chainage %.1f m) and %s (%.1f m): beyond, the fits find only lines far deeper (%s deep)%s than the %.3g m and %.3g A of the sound stations before, the field past a conductor's end; those stations are left out of the current and cover profile (an end of the survey's conductor at an earth electrode, a fault or a joint to something else; check where it goes); %s%s",
+			label(first), first.Chainage, label(second), second.Chainage, depthRange, weaker, ref.depth, ref.current, before.text(), shared),
 		Values: []Value{
 			{Name: "current before", Value: before.current, Sigma: before.currentSigma, Unit: "A"},
 			{Name: "depth before", Value: before.depth, Sigma: before.depthSigma, Unit: "m"},

@@ -1,6 +1,7 @@
 package route
 
 import (
+	"fmt"
 	"math"
 
 	"gonum.org/v1/gonum/stat/distuv"
@@ -97,16 +98,28 @@ func (b beforeEnd) explains(ps []Placed, idx []int, start int, set *Settings) bo
 // markShares sets the end's share b on the usable stations of ps before
 // the end whose first station past it is idx[start] (idx in order towards
 // the end), when it explains them (see above).
-func markShares(ps []Placed, idx []int, start int, set *Settings, b beforeEnd) {
+//
+// It returns the words the end's finding adds when the share corrects a
+// station by endShareNamed or more: a change of current among those
+// stations, or between them and the end, cannot be told from the end's
+// own field (a loss there is taken in by the share), so the finding says
+// so and names the farthest of them; "" when none is corrected that much.
+func markShares(ps []Placed, idx []int, start int, set *Settings, b beforeEnd) string {
 	if start < 1 || !b.explains(ps, idx, start, set) {
-		return
+		return ""
 	}
 	a := &ps[idx[start-1]]
+	var far *Placed
+	n := 0
 	for j := start - 1; j >= 0; j-- {
 		p := &ps[idx[j]]
 		f, s := b.share(math.Abs(a.Chainage - p.Chainage))
 		if !(f > 0) || !(f < 1) || !finite(s) {
 			continue
+		}
+		if p.OK && 1-f >= endShareNamed {
+			far = p
+			n++
 		}
 		if p.endShare > 0 {
 			// Both ends of a short route: the shares multiply.
@@ -115,7 +128,19 @@ func markShares(ps []Placed, idx []int, start int, set *Settings, b beforeEnd) {
 		}
 		p.endShare, p.endShareSigma = f, s
 	}
+	switch {
+	case far == nil:
+		return ""
+	case n == 1:
+		return fmt.Sprintf("; %s reads part of the end's field and is corrected for it in the search for changes of current, so a change of current between it and the end cannot be told from the end itself", label(far))
+	}
+	return fmt.Sprintf("; the stations from %s to %s read part of the end's field and are corrected for it in the search for changes of current, so a change of current among them, or between them and the end, cannot be told from the end itself", label(far), label(a))
 }
+
+// endShareNamed is the least correction by the end's share (a fraction of
+// the station's current) that the end's finding names: one per cent, a
+// tenth of the falls that the share took away in review.
+const endShareNamed = 0.01
 
 // endCorrected returns ps with the currents of the stations that read part
 // of an end's field divided by their share, their sigmas widened by its
