@@ -39,6 +39,13 @@ type Fit struct {
 	MeasuredNoise float64
 
 	object *route.Object // the magnetised object found by checkDipoles
+	// sameObject is the key of the group that reports the object this
+	// fit's readings also saw (mergeSameObjects, sameobject.go): Result is
+	// then the conductors refitted with that object's field taken out, and
+	// sameOffset the distance, m, between this fit's own placing of the
+	// object and the reported one.
+	sameObject string
+	sameOffset float64
 	// sumSplit makes the route take the sum of the strongest line's
 	// same-way split (markSplitSums).
 	sumSplit bool
@@ -306,6 +313,7 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 	markLoneMisfits(d.Groups, fits, &bs, rs)
 	d.UncertaintyNote = SigmaNote
 	aloneFindings(fits, r)
+	sameObjectFindings(fits, r)
 	caveatMisfitSteps(r, modelMisses(fits, &bs, rs, shared != "" || bs.Noise <= 0 && rs.MaxReducedChi2 < 0))
 	if pairRoute {
 		caveatPartnerSteps(r, fits)

@@ -357,7 +357,7 @@ func checkDipoles(fits []Fit, r *route.Route) bool {
 		}()
 	}
 	wg.Wait()
-	changed := false
+	var acc []accepted
 	for i := range fits {
 		f := &fits[i]
 		ds := found[i]
@@ -373,6 +373,15 @@ func checkDipoles(fits []Fit, r *route.Route) bool {
 				continue
 			}
 		}
+		acc = append(acc, accepted{fit: i, ds: ds})
+	}
+	// One object seen from two traverses is reported once (sameobject.go):
+	// the traverse that placed it less well keeps its conductors, refitted
+	// without the object's field.
+	kept := mergeSameObjects(fits, acc)
+	changed := len(kept) < len(acc)
+	for _, a := range kept {
+		f, ds := &fits[a.fit], a.ds
 		dropSearch(f)
 		f.Dipole, f.object, f.Result = true, ds.obj, ds.result
 		changed = true
