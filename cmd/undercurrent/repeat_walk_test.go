@@ -5,6 +5,7 @@ import (
 	"os"
 	"path/filepath"
 	"regexp"
+	"strconv"
 	"strings"
 	"testing"
 
@@ -18,6 +19,14 @@ import (
 // re-walk). It returns the locate arguments for both walks: the bases and
 // then the two survey logs.
 func walkAgain(t *testing.T, dir, name string, keep func(string) bool) []string {
+	t.Helper()
+	return walkTwice(t, dir, name, 1, 2, nil, keep)
+}
+
+// walkTwice is walkAgain with the two walks' seeds given and, when edit
+// is not nil, the second walk's scenario text passed through it (a
+// current changed between the walks).
+func walkTwice(t *testing.T, dir, name string, seed1, seed2 int, edit func([]byte) []byte, keep func(string) bool) []string {
 	t.Helper()
 	_, path := scenario(t, name)
 	text, err := os.ReadFile(path)
@@ -34,14 +43,17 @@ func walkAgain(t *testing.T, dir, name string, keep func(string) bool) []string 
 		t.Fatalf("%s starts on day %d: the test moves it on one day within the month", name, day)
 	}
 	later := start.ReplaceAll(text, []byte(`start = "${1}`+twoDigits(day+1)+`${3}"`))
+	if edit != nil {
+		later = edit(later)
+	}
 	second := filepath.Join(dir, "later.toml")
 	if err := os.WriteFile(second, later, 0o644); err != nil {
 		t.Fatal(err)
 	}
 	a, ab := filepath.Join(dir, "day1.csv"), filepath.Join(dir, "day1-base.csv")
 	b, bb := filepath.Join(dir, "day2.csv"), filepath.Join(dir, "day2-base.csv")
-	mustCLI(t, "simulate", "--seed", "1", path, "-o", a, "--base-log", ab)
-	mustCLI(t, "simulate", "--seed", "2", second, "-o", b, "--base-log", bb)
+	mustCLI(t, "simulate", "--seed", strconv.Itoa(seed1), path, "-o", a, "--base-log", ab)
+	mustCLI(t, "simulate", "--seed", strconv.Itoa(seed2), second, "-o", b, "--base-log", bb)
 	if keep != nil {
 		s, err := ingest.ReadSamples(b)
 		if err != nil {

@@ -86,6 +86,7 @@ func Build(stations []Station, set *Settings) (*Route, error) {
 	// Repeats of a station (a route walked again) are one station for
 	// the steps and the scatter (repeats.go).
 	one := combineRepeats(r.Stations, repeatGap(r.Stations))
+	r.Findings = append(r.Findings, walksDiffer(r.Stations, repeatGap(r.Stations))...)
 	r.ModelScatter, r.ScatterWidening = modelScatter(outsideBends(one, set), set)
 	st, notes := steps(one, set, r.ModelScatter, r.ScatterWidening)
 	r.Findings = append(r.Findings, st...)
