@@ -14,7 +14,8 @@ import (
 
 // walkAgain simulates the bundled scenario name twice into dir: the first
 // walk with seed 1 at the scenario's start, the second with seed 2 one day
-// later (its start line moved on 24 h), each with its base log. keep, when
+// later (its start line moved on 24 h), each with its base log when the
+// scenario has a base station. keep, when
 // not nil, keeps only those traverses of the second walk (a partial
 // re-walk). It returns the locate arguments for both walks: the bases and
 // then the two survey logs.
@@ -52,14 +53,25 @@ func walkTwice(t *testing.T, dir, name string, seed1, seed2 int, edit func([]byt
 	}
 	a, ab := filepath.Join(dir, "day1.csv"), filepath.Join(dir, "day1-base.csv")
 	b, bb := filepath.Join(dir, "day2.csv"), filepath.Join(dir, "day2-base.csv")
-	mustCLI(t, "simulate", "--seed", strconv.Itoa(seed1), path, "-o", a, "--base-log", ab)
-	mustCLI(t, "simulate", "--seed", strconv.Itoa(seed2), second, "-o", b, "--base-log", bb)
+	// A scenario without a base station gives no base logs.
+	based := regexp.MustCompile(`(?m)^\[base\]`).Match(text)
+	baseOf := func(f string) []string {
+		if !based {
+			return nil
+		}
+		return []string{"--base-log", f}
+	}
+	mustCLI(t, append([]string{"simulate", "--seed", strconv.Itoa(seed1), path, "-o", a}, baseOf(ab)...)...)
+	mustCLI(t, append([]string{"simulate", "--seed", strconv.Itoa(seed2), second, "-o", b}, baseOf(bb)...)...)
 	if keep != nil {
 		s, err := ingest.ReadSamples(b)
 		if err != nil {
 			t.Fatal(err)
 		}
 		b = writeSplitLog(t, dir, "day2-part.csv", rowsOf(s, keep, nil))
+	}
+	if !based {
+		return []string{a, b}
 	}
 	return []string{"--base", ab, "--base", bb, a, b}
 }
