@@ -6,6 +6,7 @@ import (
 	"math"
 	"math/cmplx"
 	"strings"
+	"time"
 
 	"undercurrent/inverse"
 	"undercurrent/inverse/route"
@@ -37,6 +38,12 @@ type Fit struct {
 	// MeasuredNoise is this group's noise measured apart from the fit, nT
 	// (as BuildSettings.MeasuredNoise, which stands in when it is 0).
 	MeasuredNoise float64
+	// Walk names the survey log the group's readings come from, when a
+	// run reads several, and Start is the time of its first reading (zero
+	// when not known): the route names the walks by them where repeats
+	// of a station disagree (route.Station.Walk).
+	Walk  string
+	Start time.Time
 
 	object *route.Object // the magnetised object found by checkDipoles
 	// sameObject is the key of the group that reports the object this
@@ -665,7 +672,7 @@ func circuitPartner(f *Fit, ac, pairRoute bool) int {
 func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute bool, sensorHeight float64) (Group, route.Station) {
 	pts := f.Problem.Points
 	g := Group{Key: f.Key, Points: len(pts), Centroid: centroid(pts), Sources: []Source{}}
-	st := route.Station{Key: f.Key, Point: g.Centroid, AC: ac, Dipole: f.Dipole}
+	st := route.Station{Key: f.Key, Point: g.Centroid, AC: ac, Dipole: f.Dipole, Walk: f.Walk, Start: f.Start}
 	if f.Result == nil {
 		g.Problem = "the fit failed: " + f.Err.Error()
 		st.Problem = g.Problem

@@ -168,21 +168,39 @@ const maxSlopeSigma = 1.0
 // openTrack is a track being built by associate.
 type openTrack struct {
 	members []trackSource
+	// gap is the chainage within which the primary route's stations are
+	// repeats of one station (a route walked again: route.RepeatGap),
+	// zero for none.
+	gap float64
 }
 
 // predict is the track's offset expected at chainage c, and the
 // uncertainty of that prediction, m, by which the gate is widened (zero
 // for a track of two or more stations).
+//
+// The slope is taken from the last member and the latest one before it
+// at least gap before it along the route: a repeat of the last station
+// (a route walked again) lies a fraction of a millimetre from it, and the
+// slope between them, the two fits' offsets differing by their noise over
+// no length, was held only by maxTrackSlope, so the prediction at the
+// next traverse missed by up to 1.7 times the spacing and a route walked
+// twice followed no further conductor (two-conductors-fault walked twice
+// lost conductor 2 and its 7 A fault; found in review). With every
+// member a repeat of the last, the track is carried on as one station.
 func (t *openTrack) predict(c float64) (offset, sigma float64) {
 	n := len(t.members)
 	last := t.members[n-1]
 	dc := c - last.chainage
-	if n < 2 {
+	k := n - 2
+	for k >= 0 && last.chainage-t.members[k].chainage < t.gap {
+		k--
+	}
+	if k < 0 {
 		// One station: carried on along its own fitted direction.
 		slope := clampSlope(last.slope)
 		return last.offset + slope*dc, math.Abs(dc) * math.Min(last.slopeSigma, maxSlopeSigma)
 	}
-	prev := t.members[n-2]
+	prev := t.members[k]
 	span := last.chainage - prev.chainage
 	if span <= 0 {
 		return last.offset, 0
@@ -272,6 +290,12 @@ func lineDistance(a, c *trackSource) (float64, bool) {
 // order, into tracks (see the rules above) and returns the tracks with at
 // least minStations stations, in the order they are numbered (2, 3, ...).
 func associate(groups [][]trackSource, minStations int) [][]trackSource {
+	return associateRepeats(groups, minStations, 0)
+}
+
+// associateRepeats is associate on a primary route whose stations less
+// than gap apart along it are repeats of one station (openTrack.predict).
+func associateRepeats(groups [][]trackSource, minStations int, gap float64) [][]trackSource {
 	var tracks []*openTrack
 	for _, cands := range groups {
 		if len(cands) == 0 {
@@ -331,7 +355,7 @@ func associate(groups [][]trackSource, minStations int) [][]trackSource {
 		}
 		sort.SliceStable(rest, func(i, j int) bool { return rest[i].offset < rest[j].offset })
 		for _, c := range rest {
-			tracks = append(tracks, &openTrack{members: []trackSource{c}})
+			tracks = append(tracks, &openTrack{members: []trackSource{c}, gap: gap})
 		}
 	}
 	type kept struct {
@@ -640,7 +664,7 @@ func buildTracks(fits []Fit, r *route.Route, rs *route.Settings, minStations int
 	if minStations < 1 {
 		return nil, nil
 	}
-	tracks := associate(trackCandidates(fits, r, pairRoute, ac), minStations)
+	tracks := associateRepeats(trackCandidates(fits, r, pairRoute, ac), minStations, r.RepeatGap())
 	out := make([]builtTrack, 0, len(tracks))
 	for i, members := range tracks {
 		n := i + 2

@@ -1736,6 +1736,12 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 			fits[i].PhaseRampHz, fits[i].PhaseRampSigmaHz = g.ramp.hz, g.ramp.sigma
 		}
 		fits[i].MeasuredNoise = g.measuredNoise(sv.ac)
+		if len(sv.logs) > 1 {
+			fits[i].Walk = logLabel(g.from, sv.logs)
+		}
+		if t := g.firstTime(); calendarTime(t) {
+			fits[i].Start = time.UnixMilli(int64(math.Round(t * 1e3))).UTC()
+		}
 	}
 	// report.Build takes no context; its along-route analysis (the dipole
 	// refits above all) can take seconds, so an interrupt is not kept

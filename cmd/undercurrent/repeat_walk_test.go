@@ -5,6 +5,7 @@ import (
 	"os"
 	"path/filepath"
 	"regexp"
+	"strconv"
 	"strings"
 	"testing"
 
@@ -13,11 +14,20 @@ import (
 
 // walkAgain simulates the bundled scenario name twice into dir: the first
 // walk with seed 1 at the scenario's start, the second with seed 2 one day
-// later (its start line moved on 24 h), each with its base log. keep, when
+// later (its start line moved on 24 h), each with its base log when the
+// scenario has a base station. keep, when
 // not nil, keeps only those traverses of the second walk (a partial
 // re-walk). It returns the locate arguments for both walks: the bases and
 // then the two survey logs.
 func walkAgain(t *testing.T, dir, name string, keep func(string) bool) []string {
+	t.Helper()
+	return walkTwice(t, dir, name, 1, 2, nil, keep)
+}
+
+// walkTwice is walkAgain with the two walks' seeds given and, when edit
+// is not nil, the second walk's scenario text passed through it (a
+// current changed between the walks).
+func walkTwice(t *testing.T, dir, name string, seed1, seed2 int, edit func([]byte) []byte, keep func(string) bool) []string {
 	t.Helper()
 	_, path := scenario(t, name)
 	text, err := os.ReadFile(path)
@@ -34,20 +44,34 @@ func walkAgain(t *testing.T, dir, name string, keep func(string) bool) []string 
 		t.Fatalf("%s starts on day %d: the test moves it on one day within the month", name, day)
 	}
 	later := start.ReplaceAll(text, []byte(`start = "${1}`+twoDigits(day+1)+`${3}"`))
+	if edit != nil {
+		later = edit(later)
+	}
 	second := filepath.Join(dir, "later.toml")
 	if err := os.WriteFile(second, later, 0o644); err != nil {
 		t.Fatal(err)
 	}
 	a, ab := filepath.Join(dir, "day1.csv"), filepath.Join(dir, "day1-base.csv")
 	b, bb := filepath.Join(dir, "day2.csv"), filepath.Join(dir, "day2-base.csv")
-	mustCLI(t, "simulate", "--seed", "1", path, "-o", a, "--base-log", ab)
-	mustCLI(t, "simulate", "--seed", "2", second, "-o", b, "--base-log", bb)
+	// A scenario without a base station gives no base logs.
+	based := regexp.MustCompile(`(?m)^\[base\]`).Match(text)
+	baseOf := func(f string) []string {
+		if !based {
+			return nil
+		}
+		return []string{"--base-log", f}
+	}
+	mustCLI(t, append([]string{"simulate", "--seed", strconv.Itoa(seed1), path, "-o", a}, baseOf(ab)...)...)
+	mustCLI(t, append([]string{"simulate", "--seed", strconv.Itoa(seed2), second, "-o", b}, baseOf(bb)...)...)
 	if keep != nil {
 		s, err := ingest.ReadSamples(b)
 		if err != nil {
 			t.Fatal(err)
 		}
 		b = writeSplitLog(t, dir, "day2-part.csv", rowsOf(s, keep, nil))
+	}
+	if !based {
+		return []string{a, b}
 	}
 	return []string{"--base", ab, "--base", bb, a, b}
 }

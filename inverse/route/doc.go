@@ -67,7 +67,10 @@
 // repeats of one station (a route walked again, in a log of its own): they
 // take no part in each other's direction, and the steps and the
 // between-station scatter take each set of repeats as one station, their
-// inverse-variance mean (see repeats.go).
+// inverse-variance mean (see repeats.go). Repeats whose currents disagree
+// beyond their sigmas (a chi-square over the sets of repeats) are reported
+// as KindWalksDiffer, with each walk's level and its change from the
+// first walk (see walks.go).
 //
 // # Steps in current
 //

@@ -32,6 +32,10 @@ const (
 	// fit: more likely the fit absorbing a bend or a change of depth than
 	// a conductor, but shallow if it is one.
 	KindWeakSource Kind = "weak-source"
+	// KindWalksDiffer is repeats of stations (a route walked again) whose
+	// currents disagree beyond their sigmas: the current changed between
+	// the walks, or varied during them (walks.go).
+	KindWalksDiffer Kind = "walks-differ"
 )
 
 // Severity ranks findings for a crew.

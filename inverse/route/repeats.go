@@ -76,6 +76,11 @@ func repeatSpacing(ps []Placed) float64 {
 	return medianOf(long)
 }
 
+// RepeatGap is the chainage within which the route's stations are
+// repeats of one station (a route walked again; see repeatGap), m; zero
+// when there are none to tell.
+func (r *Route) RepeatGap() float64 { return repeatGap(r.Stations) }
+
 // repeatGap is the chainage within which stations of ps are repeats of one
 // station (repeatFrac of repeatSpacing), m.
 func repeatGap(ps []Placed) float64 { return repeatFrac * repeatSpacing(ps) }

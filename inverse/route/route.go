@@ -92,6 +92,7 @@ func Build(stations []Station, set *Settings) (*Route, error) {
 	one := combineRepeats(r.Stations, repeatGap(r.Stations))
 	// Stations before a named end read its share of the field (endshare.go).
 	one = endCorrected(one)
+	r.Findings = append(r.Findings, walksDiffer(r.Stations, repeatGap(r.Stations))...)
 	r.ModelScatter, r.ScatterWidening = modelScatter(outsideBends(one, set), set)
 	st, notes := steps(one, set, r.ModelScatter, r.ScatterWidening)
 	r.Findings = append(r.Findings, st...)

@@ -1,5 +1,7 @@
 package route
 
+import "time"
+
 // Station is the fit of one group (a traverse, a sensor or a time window),
 // reduced to the conductor the route follows. Positions are metres in a
 // local east, north, up frame; currents in amperes, signed along Dir (RMS
@@ -70,6 +72,13 @@ type Station struct {
 	// Object describes the magnetised object when Dipole is true (nil
 	// when the caller has no estimate of it).
 	Object *Object
+	// Walk names the walk the group's readings were taken on (the survey
+	// log, when a run reads several), and Start is the time of its first
+	// reading (zero when not known). They name the walks whose repeats
+	// of one station disagree (walks.go); with no Walk the repeats of a
+	// station are taken as walks in the order given.
+	Walk  string
+	Start time.Time
 	// Further lists the other line sources of the group's fit, besides
 	// the conductor the route follows (dipoles are not listed): a second
 	// conductor, or a source the fit added to absorb the main conductor's

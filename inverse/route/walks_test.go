@@ -1,0 +1,131 @@
+package route
+
+import (
+	"math"
+	"strings"
+	"testing"
+	"time"
+)
+
+// twoWalks is walkedTwice (repeats_test.go) with the second walk's
+// current scaled by scale(k) at traverse k (simulated truth: the current
+// of the second walk, a day later), each station's Walk named after its
+// log ("day1.csv", "day2.csv") and its Start set a day apart, 30 s per
+// traverse, when named; left empty otherwise.
+func twoWalks(n int, sig float64, seed uint64, scale func(k int) float64, second func(k int) bool, named bool) []Station {
+	st := walkedTwice(n, sig, seed, func(float64) float64 { return 25 }, second)
+	t0 := time.Date(2026, 2, 2, 14, 0, 0, 0, time.UTC)
+	k := 0
+	for i := range st {
+		day2 := strings.HasPrefix(st[i].Key, "day2:")
+		var trav int
+		for trav = 0; trav < n; trav++ {
+			if strings.HasSuffix(st[i].Key, "T"+string(rune('0'+(trav+1)/10))+string(rune('0'+(trav+1)%10))) {
+				break
+			}
+		}
+		if day2 {
+			// The noise drawn about 25 A scaled with the current: the
+			// second walk's sigma is sig as the first's.
+			s := scale(trav)
+			st[i].Current = math.Copysign(math.Abs(st[i].Current)-25+25*s, st[i].Current)
+		}
+		if named {
+			st[i].Walk = "day1.csv"
+			st[i].Start = t0.Add(time.Duration(trav) * 30 * time.Second)
+			if day2 {
+				st[i].Walk = "day2.csv"
+				st[i].Start = st[i].Start.Add(24 * time.Hour)
+			}
+		}
+		k++
+	}
+	return st
+}
+
+// walksDifferOf returns r's walks-differ findings.
+func walksDifferOf(r *Route) []Finding { return findings(r, KindWalksDiffer) }
+
+// TestWalksDifferCurrentChanged: a 25 A conductor walked again at 24 A
+// (simulated truth: -1 A between the walks, none along the route), seven
+// traverses with sigmas of 0.007 A, whole and the last three only, over
+// twenty noise draws. One caution says the current changed between the
+// walks, each walk's level within 3 sigma of 25 A and 24 A, the change
+// within 3 sigma of -1 A, naming the logs and when they were walked.
+func TestWalksDifferCurrentChanged(t *testing.T) {
+	for _, c := range []struct {
+		name   string
+		second func(int) bool
+	}{{"whole", func(int) bool { return true }}, {"last three", func(k int) bool { return k >= 4 }}} {
+		for seed := uint64(1); seed <= 20; seed++ {
+			r, err := Build(twoWalks(7, 0.007, seed, func(int) float64 { return 24.0 / 25 }, c.second, true), &Settings{SensorHeight: 0.3})
+			if err != nil {
+				t.Fatal(err)
+			}
+			fs := walksDifferOf(r)
+			if len(fs) != 1 {
+				t.Fatalf("%s, seed %d: %d walks-differ findings, want one: %v", c.name, seed, len(fs), r.Findings)
+			}
+			f := fs[0]
+			if f.Severity != SeverityCaution || !strings.HasPrefix(f.Message, "the current changed between the walks") {
+				t.Errorf("%s, seed %d: %s %s", c.name, seed, f.Severity, f.Message)
+			}
+			for _, want := range []string{"day1.csv (from 2026-02-02 14:0", "day2.csv (from 2026-02-03 14:0", "from day1.csv to day2.csv"} {
+				if !strings.Contains(f.Message, want) {
+					t.Errorf("%s, seed %d: the finding does not say %q: %s", c.name, seed, want, f.Message)
+				}
+			}
+			for name, want := range map[string]float64{"level day1.csv": 25, "level day2.csv": 24, "change day2.csv": -1} {
+				v, ok := valueNamed(f, name)
+				if !ok || !(v.Sigma > 0) || math.Abs(v.Value-want) > 3*v.Sigma {
+					t.Errorf("%s, seed %d: %s = %v, want %g A within 3 sigma", c.name, seed, name, v, want)
+				}
+			}
+		}
+	}
+}
+
+// TestWalksDifferSteady: the same 25 A walked twice without a change
+// (simulated truth), whole and the last three traverses, the walks named
+// and not, over forty noise draws each: no walks-differ finding (the
+// test's chance of one is a thousandth a run).
+func TestWalksDifferSteady(t *testing.T) {
+	for _, named := range []bool{true, false} {
+		for _, part := range []bool{false, true} {
+			second := func(k int) bool { return !part || k >= 4 }
+			for seed := uint64(1); seed <= 40; seed++ {
+				r, err := Build(twoWalks(7, 0.007, seed, func(int) float64 { return 1 }, second, named), &Settings{SensorHeight: 0.3})
+				if err != nil {
+					t.Fatal(err)
+				}
+				for _, f := range walksDifferOf(r) {
+					t.Errorf("named %v, part %v, seed %d: %s", named, part, seed, f.Message)
+				}
+			}
+		}
+	}
+}
+
+// TestWalksDifferVaried: the second walk's current up and down by 0.2 A
+// from traverse to traverse (simulated truth: a load that comes and goes
+// during the walk, no one change between the walks), the walks not named:
+// the finding says the repeats disagree and not by one change between
+// the walks, and names the walks by their order.
+func TestWalksDifferVaried(t *testing.T) {
+	for seed := uint64(1); seed <= 10; seed++ {
+		scale := func(k int) float64 { return 1 + 0.008*float64(2*(k%2)-1) }
+		r, err := Build(twoWalks(7, 0.007, seed, scale, func(int) bool { return true }, false), &Settings{SensorHeight: 0.3})
+		if err != nil {
+			t.Fatal(err)
+		}
+		fs := walksDifferOf(r)
+		if len(fs) != 1 {
+			t.Fatalf("seed %d: %d walks-differ findings, want one: %v", seed, len(fs), r.Findings)
+		}
+		for _, want := range []string{"not by one change of current between the walks", "in the first walk", "in the second walk"} {
+			if !strings.Contains(fs[0].Message, want) {
+				t.Errorf("seed %d: the finding does not say %q: %s", seed, want, fs[0].Message)
+			}
+		}
+	}
+}
