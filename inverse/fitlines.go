@@ -2156,8 +2156,9 @@ const cancelMisfit = 4
 // cancellingPair returns why the guard refuses the fit c, summarised by su, for two
 // lines (other than skip, an index of su.lines or -1) carrying opposite currents that
 // nearly cancel (their sum within cancelShare of the smaller), each over cancelScale
-// times the current the readings can see at that line (currentScale), while the fit
-// misses the readings by over cancelMisfit times their noise (overFloor); or "".
+// times the current the readings can see at that line (currentScale), beside a
+// further line, while the fit misses the readings by over cancelMisfit times their
+// noise (overFloor); or "".
 //
 // By Ampere's law a line of current I at distance r from the nearest reading gives
 // mu0 I / (2 pi r) there, so a line carrying a hundred times the current whose field
@@ -2176,7 +2177,11 @@ const cancelMisfit = 4
 // readings' largest anomaly, 3.2 microtesla about 1 m from the lines, supports 16 A.
 // Refused, the count falls back to fewer lines (or, when the two lines lie on one
 // another, tries more: see run), and the report's search for magnetised objects
-// starts from that fit.
+// starts from that fit. A pair with no other line is kept: it is the fit's picture
+// of an object alone (its net current near zero), from which the report's search
+// finds the object, where the one line it falls back to had been taken for a
+// conductor 0.07 m below the ground (report TestBuildFindsObjectAlone); beside a
+// further line the pair's net current joins that line's in the route.
 func (f *fitter) cancellingPair(c *candidate, su *summary, skip int) string {
 	over := f.overFloor(c.sp, c.rss)
 	if !(over > cancelMisfit) || math.IsInf(over, 1) {
@@ -2209,7 +2214,13 @@ func (f *fitter) cancellingPair(c *candidate, su *summary, skip int) string {
 				cj = -cj
 			}
 			small := math.Min(cmplx.Abs(ci), cmplx.Abs(cj))
-			if real(ci*cmplx.Conj(cj)) < 0 && cmplx.Abs(ci+cj) < cancelShare*small {
+			others := 0
+			for l, e := range su.lines {
+				if l != i && l != j && l != skip && e.Kind == "line" {
+					others++
+				}
+			}
+			if others > 0 && real(ci*cmplx.Conj(cj)) < 0 && cmplx.Abs(ci+cj) < cancelShare*small {
 				return fmt.Sprintf("lines %d and %d carry %.4g A and %.4g A, cancelling to %.3g A, each over %d times the %.3g A the readings' largest anomaly supports at that line, and the fit misses the readings by %.3g times their noise (a line dipole standing for a field of another shape, such as a magnetised object's, not a go-and-return pair)",
 					i+1, j+1, signed(ci), signed(cj), cmplx.Abs(ci+cj), cancelScale, math.Max(scale[i], scale[j]), over)
 			}
