@@ -2202,11 +2202,11 @@ func (f *fitter) cancellingPair(c *candidate, su *summary, skip int) string {
 		scale = append(scale, f.currentScale(Line{Point: e.Point, Dir: e.Dir}))
 	}
 	for i := range cur {
-		if !(cmplx.Abs(cur[i]) > cancelScale*scale[i]) {
+		if !(scale[i] > 0) || !(cmplx.Abs(cur[i]) > cancelScale*scale[i]) {
 			continue
 		}
 		for j := i + 1; j < len(cur); j++ {
-			if !(cmplx.Abs(cur[j]) > cancelScale*scale[j]) {
+			if !(scale[j] > 0) || !(cmplx.Abs(cur[j]) > cancelScale*scale[j]) {
 				continue
 			}
 			ci, cj := cur[i], cur[j]
