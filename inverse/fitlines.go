@@ -57,6 +57,9 @@ func FitLines(p *Problem, set *Settings) (*Result, error) {
 	if err := p.validate(); err != nil {
 		return nil, err
 	}
+	if err := set.check(); err != nil {
+		return nil, err
+	}
 	s := set.orDefault()
 	if s.Count < 0 || s.Count > 8 {
 		return nil, fmt.Errorf("inverse: Settings.Count = %d, want 0 (automatic) to 8", s.Count)

@@ -18,8 +18,10 @@ type Problem struct {
 	// Phasors are AC readings, complex RMS nanotesla per axis referenced to a common
 	// time origin (as produced by demodulation), one per point.
 	Phasors [][3]complex128
-	// Sigma is the one-sigma reading noise per axis in nT. Zero means unknown: it is
-	// estimated from the residuals (s^2 = RSS/DOF).
+	// Sigma is the one-sigma reading noise per axis in nT; for Phasors, per real and
+	// per imaginary part of each axis's phasor (so a phasor's modulus scatters by
+	// sqrt(2) Sigma). Zero means unknown: it is estimated from the residuals
+	// (s^2 = RSS/DOF, RSS over every real number).
 	Sigma float64
 	// Travel, when not nil, gives each reading's half-travel in metres (ENU): reading i
 	// is the mean of the field along the straight segment Points[i] - Travel[i] ..
@@ -164,7 +166,9 @@ type Settings struct {
 	// Azimuth, when set, holds every line at this azimuth (degrees clockwise from
 	// north). When nil the azimuth is fitted, for a single traverse too (the three-axis
 	// field determines it, see the package documentation; there it is seeded
-	// perpendicular to the traverse and kept within 60 degrees of that). Only when the
+	// perpendicular to the traverse and searched within 80 degrees of that; the strongest
+	// line, where it crosses the traverse's line beyond the readings' ends, within 60).
+	// Only when the
 	// fit does not determine it (rank loss, sigma above 15 degrees) is it held
 	// perpendicular to the traverse and reported as not identifiable.
 	Azimuth *float64
@@ -195,6 +199,51 @@ type Settings struct {
 	// also stops when a step changes chi-square by less than 1e-4 (within about 0.015
 	// standard errors of the minimum): converged to the noise floor.
 	FTol, XTol, GTol float64
+}
+
+// check refuses settings outside the ranges their documentation gives: a
+// NaN or infinite height, azimuth or dip, a dip beyond ±90 degrees, an
+// unknown criterion or background, and negative (or NaN) bounds and
+// tolerances, whose zero alone means the default. Before, these were taken
+// without a word: a NaN ReferenceZ gave NaN depths marked identifiable, a
+// NaN azimuth an error blaming the readings, a dip of 95 degrees a fit.
+func (s *Settings) check() error {
+	if s == nil {
+		return nil
+	}
+	finite := func(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
+	if s.ReferenceZ != nil && !finite(*s.ReferenceZ) {
+		return fmt.Errorf("inverse: Settings.ReferenceZ is %v, want a finite height (m)", *s.ReferenceZ)
+	}
+	if s.Azimuth != nil && !finite(*s.Azimuth) {
+		return fmt.Errorf("inverse: Settings.Azimuth is %v, want a finite angle (degrees)", *s.Azimuth)
+	}
+	if s.Dip != nil && !(*s.Dip >= -90 && *s.Dip <= 90) {
+		return fmt.Errorf("inverse: Settings.Dip = %v, want -90 to 90 degrees", *s.Dip)
+	}
+	if s.Criterion != BIC && s.Criterion != AIC {
+		return fmt.Errorf("inverse: unknown Settings.Criterion %d (BIC or AIC)", int(s.Criterion))
+	}
+	switch s.Background {
+	case BackgroundUniform, BackgroundNone, BackgroundGradient:
+	default:
+		return fmt.Errorf("inverse: unknown Settings.Background %d (BackgroundUniform, BackgroundNone or BackgroundGradient)", int(s.Background))
+	}
+	if s.MaxCount < 0 || s.MaxCount > 8 {
+		return fmt.Errorf("inverse: Settings.MaxCount = %d, want 0 (meaning 4) to 8", s.MaxCount)
+	}
+	if s.MaxIter < 0 {
+		return fmt.Errorf("inverse: Settings.MaxIter = %d, want 0 (meaning 200) or more", s.MaxIter)
+	}
+	for _, v := range []struct {
+		name string
+		v    float64
+	}{{"MinDepth", s.MinDepth}, {"HuberC", s.HuberC}, {"FTol", s.FTol}, {"XTol", s.XTol}, {"GTol", s.GTol}} {
+		if !(v.v >= 0) || math.IsInf(v.v, 0) {
+			return fmt.Errorf("inverse: Settings.%s = %v, want 0 (the default) or a finite positive value", v.name, v.v)
+		}
+	}
+	return nil
 }
 
 func (s *Settings) orDefault() Settings {
@@ -309,7 +358,9 @@ type Result struct {
 	// AC. Nil for FitLines.
 	Strengths, StrengthSigmas []float64
 	StrengthPhasors           []complex128
-	// RMS is the root-mean-square residual per axis reading, nT.
+	// RMS is the root-mean-square residual per axis reading, nT: for AC the modulus
+	// of each axis's complex residual, so that a fit at the noise has RMS near
+	// sqrt(2) Sigma (Sigma is per real part); for DC, RMS near Sigma.
 	RMS float64
 	// Sigma is the noise used for the uncertainties: Problem.Sigma or, when that is
 	// zero, the estimate sqrt(RSS/DOF).

@@ -40,6 +40,9 @@ func NewStrengthsScan(p *Problem, fixed []Source, set *Settings) (*StrengthsScan
 	if err := p.validate(); err != nil {
 		return nil, err
 	}
+	if err := set.check(); err != nil {
+		return nil, err
+	}
 	s := set.orDefault()
 	sv := newSurvey(p)
 	phi, m, q, _, _, err := strengthsBasis(p, fixed, s, sv)

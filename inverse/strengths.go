@@ -32,6 +32,9 @@ func FitStrengths(p *Problem, sources []Source, set *Settings) (*Result, error) 
 	if err := p.validate(); err != nil {
 		return nil, err
 	}
+	if err := set.check(); err != nil {
+		return nil, err
+	}
 	if len(sources) == 0 {
 		return nil, errors.New("inverse: FitStrengths needs at least one source")
 	}
