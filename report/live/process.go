@@ -348,17 +348,23 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 	if err == nil && len(out.Current) != len(p.names) {
 		err = fmt.Errorf("estimator returned %d currents for %d conductors", len(out.Current), len(p.names))
 	}
+	if err == nil {
+		if what := nonFiniteOutput(out); what != "" {
+			err = fmt.Errorf("the fit gave a non-finite %s", what)
+		}
+	}
 	p.solveErr = err
 	if err != nil {
 		// The estimator's error is for the log (the worker logs
 		// solveErr); the alarm says what an operator can act on.
-		e.Quality = "failed"
 		msg := fmt.Sprintf("no estimate: no sensor gave enough usable samples (at least %d) in the window", minSamples)
 		if len(r.used) > 0 {
 			msg = fmt.Sprintf("no estimate: the fit with the %d usable sensors failed (see the log)", len(r.used))
+			if sn := p.largestField(r); sn != "" && nonFiniteOutput(out) != "" {
+				msg = fmt.Sprintf("no estimate: the fit with the %d usable sensors gave non-finite values (the readings are far beyond any field; the largest, sensor %s's, is %.4g nT)", len(r.used), sn, p.fieldOf(r, sn))
+			}
 		}
-		alarms = append(alarms, p.alarm(w, AlarmDegraded, "", 0, 0, msg))
-		return e, alarms
+		return p.failed(w, e, r.alarms, msg)
 	}
 	e.RMS, e.Chi2, e.DOF, e.Background = out.RMS, out.Chi2, out.DOF, out.Background
 	e.Quality = "good"
@@ -382,6 +388,10 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 			e.Implausible = append(e.Implausible, al.Message)
 		}
 		alarms = append(alarms, imp...)
+	}
+	prev := make(map[string]float64, len(p.prev))
+	for k, v := range p.prev {
+		prev[k] = v
 	}
 	// The held geometry's error, in quadrature with the window's noise.
 	gCur, gPhase := p.geometrySigmas(&r.in, len(p.names))
@@ -440,7 +450,117 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 				fmt.Sprintf("go and return currents differ by %.4g A (leakage?)", imb)))
 		}
 	}
+	if what := nonFiniteEstimate(e, alarms); what != "" {
+		// Not encodable (JSON has no infinities): the window fails
+		// rather than stopping the asset. The step alarm's previous
+		// currents are left as they were before the window.
+		p.solveErr = fmt.Errorf("the estimate has a non-finite %s", what)
+		p.prev = prev
+		return p.failed(w, e, r.alarms, fmt.Sprintf("no estimate: the window's estimate came out with a non-finite %s (see the log)", what))
+	}
 	return e, alarms
+}
+
+// failed makes e a failed estimate, without currents or fit results, with
+// the reduction's alarms (silent and stuck sensors) and a degraded
+// alarm saying msg.
+func (p *processor) failed(w *window, e *Estimate, alarms []Alarm, msg string) (*Estimate, []Alarm) {
+	e.Quality = "failed"
+	e.Conductors = []ConductorEstimate{}
+	e.RMS, e.Chi2, e.DOF, e.Background, e.SigmaScale, e.Implausible = 0, 0, 0, nil, 0, nil
+	out := append([]Alarm(nil), alarms...)
+	return e, append(out, p.alarm(w, AlarmDegraded, "", 0, 0, msg))
+}
+
+// nonFiniteOutput names the first non-finite number of an estimator's
+// output ("" when every one is finite).
+func nonFiniteOutput(out *SolveOutput) string {
+	if out == nil {
+		return ""
+	}
+	bad := func(v ...float64) bool {
+		for _, x := range v {
+			if math.IsNaN(x) || math.IsInf(x, 0) {
+				return true
+			}
+		}
+		return false
+	}
+	switch {
+	case bad(out.Current...):
+		return "current"
+	case bad(out.CurrentSigma...):
+		return "current sigma"
+	case bad(out.Phase...) || bad(out.PhaseSigma...):
+		return "phase"
+	case out.Background != nil && bad(out.Background[:]...):
+		return "background"
+	case bad(out.Chi2):
+		return "chi-square"
+	case bad(out.RMS):
+		return "RMS residual"
+	}
+	return ""
+}
+
+// nonFiniteEstimate names the first non-finite number of an estimate or
+// its alarms ("" when all are finite, as JSON needs).
+func nonFiniteEstimate(e *Estimate, alarms []Alarm) string {
+	bad := func(x float64) bool { return math.IsNaN(x) || math.IsInf(x, 0) }
+	badp := func(x *float64) bool { return x != nil && bad(*x) }
+	if bad(e.RMS) || bad(e.Chi2) || bad(e.SigmaScale) || bad(e.Frequency) || bad(e.FrequencySigma) {
+		return "fit result"
+	}
+	if e.Background != nil && (bad(e.Background[0]) || bad(e.Background[1]) || bad(e.Background[2])) {
+		return "background"
+	}
+	for _, c := range e.Conductors {
+		if bad(c.Current) || bad(c.CurrentSigma) || bad(c.CurrentSigmaGeometry) || badp(c.Phase) || badp(c.PhaseSigma) || badp(c.PhaseSigmaGeometry) {
+			return "current of conductor " + c.Name
+		}
+	}
+	for _, a := range alarms {
+		if bad(a.Value) || bad(a.Threshold) {
+			return a.Kind + " alarm value"
+		}
+	}
+	return ""
+}
+
+// largestField names the used sensor whose reduced reading is largest
+// ("" when none is used).
+func (p *processor) largestField(r *reduced) string {
+	best, name := -1.0, ""
+	for k, i := range r.used {
+		if m := p.fieldAt(r, k); m > best || math.IsNaN(m) {
+			best, name = m, p.asset.Sensors[i].Name
+		}
+	}
+	return name
+}
+
+// fieldOf is the magnitude of the reduced reading of used sensor name.
+func (p *processor) fieldOf(r *reduced, name string) float64 {
+	for k, i := range r.used {
+		if p.asset.Sensors[i].Name == name {
+			return p.fieldAt(r, k)
+		}
+	}
+	return math.NaN()
+}
+
+// fieldAt is the magnitude of the k-th used sensor's reduced reading (the
+// mean field for DC, the phasor's for AC), computed without overflow.
+func (p *processor) fieldAt(r *reduced, k int) float64 {
+	if k < len(r.in.Fields) {
+		f := r.in.Fields[k]
+		return math.Hypot(math.Hypot(f[0], f[1]), f[2])
+	}
+	if k < len(r.in.Phasors) {
+		f := r.in.Phasors[k]
+		return math.Hypot(math.Hypot(cmplxAbs(f[0]), cmplxAbs(f[1])), cmplxAbs(f[2]))
+	}
+	return math.NaN()
 }
 
 // Checks of an implausible window, the subjects of its implausible alarms.
@@ -471,7 +591,7 @@ func (p *processor) implausible(w *window, r *reduced, out *SolveOutput) []Alarm
 		level, what := math.NaN(), ""
 		if out.Background != nil {
 			b := out.Background
-			level, what = math.Sqrt(b[0]*b[0]+b[1]*b[1]+b[2]*b[2]), "the fitted uniform background"
+			level, what = math.Hypot(math.Hypot(b[0], b[1]), b[2]), "the fitted uniform background"
 		} else if a.Mode == "ac" && len(r.totals) > 0 {
 			v := append([]float64(nil), r.totals...)
 			sort.Float64s(v)

@@ -715,7 +715,14 @@ func (w *assetWorker) message(subject string, data []byte) *nats.Msg {
 // publishAlarm publishes al on its asset's alarm subject with the message
 // ID id (the broker drops a repeat) and counts it unless it was a repeat.
 func (w *assetWorker) publishAlarm(al Alarm, id string) error {
-	ad, _ := json.Marshal(al)
+	ad, err := json.Marshal(al)
+	if err != nil {
+		// A non-finite value (solve leaves none): the alarm is kept,
+		// its numbers left out rather than sending an empty message.
+		w.log.Error("alarm value not encodable: published without it", "kind", al.Kind, "window", al.Window, "value", al.Value, "threshold", al.Threshold)
+		al.Value, al.Threshold = 0, 0
+		ad, _ = json.Marshal(al)
+	}
 	ack, err := w.svc.publishFenced(w.fenced, w.message(broker.AlarmSubject(w.asset.Name, al.Kind), ad), id)
 	if err != nil {
 		return err
@@ -977,14 +984,21 @@ func (w *assetWorker) publishWindow(win *window, r *reduced) error {
 	t2 := time.Now()
 	met.stage.WithLabelValues("reduce").Observe(t1.Sub(t0).Seconds())
 	met.stage.WithLabelValues("solve").Observe(t2.Sub(t1).Seconds())
+	data, err := json.Marshal(est)
+	if err != nil {
+		// solve leaves no non-finite number in an estimate; should one
+		// come through, the window fails instead of stopping the asset
+		// (the same message would fail again on every retry).
+		w.log.Error("estimate not encodable: window published as failed", "window", win.Index, "err", err)
+		est, alarms = w.proc.failed(win, est, r.alarms, fmt.Sprintf("no estimate: the window's estimate could not be encoded (%v; see the log)", err))
+		if data, err = json.Marshal(est); err != nil {
+			return fmt.Errorf("live: asset %s: encode estimate: %w", w.asset.Name, err)
+		}
+	}
 	if est.Quality == "failed" {
 		met.estimates.WithLabelValues(w.asset.Name, "failed").Inc()
 	}
 	w.noteImplausible(win, alarms)
-	data, err := json.Marshal(est)
-	if err != nil {
-		return fmt.Errorf("live: asset %s: encode estimate: %w", w.asset.Name, err)
-	}
 	id := w.msgID(win.Index)
 	ack, err := w.svc.publishFenced(w.fenced, w.message(broker.EstimateSubject(w.asset.Name), data), id)
 	if err != nil {
