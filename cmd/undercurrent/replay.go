@@ -262,7 +262,44 @@ func replayBatches(ctx context.Context, o *replayOptions, fs *pflag.FlagSet, pat
 	if err != nil {
 		return nil, nil, err
 	}
+	if w := fieldOverWarning(path, batches); w != "" {
+		warns = append(warns, w)
+	}
 	return batches, warns, nil
+}
+
+// fieldOverWarning warns about readings whose |B| is above the 0.1 T that
+// serve takes (broker.MaxFieldNT): serve refuses each batch holding one
+// to uc.dlq.malformed, so its window lacks that sensor's samples. The
+// batches are sent all the same, as a gateway would send them.
+func fieldOverWarning(path string, batches []*broker.Batch) string {
+	var n, nb int
+	first := ""
+	for _, b := range batches {
+		k := b.FieldOver()
+		if k == 0 {
+			continue
+		}
+		if nb == 0 {
+			for i := range b.Bx {
+				if m := math.Hypot(math.Hypot(b.Bx[i], b.By[i]), b.Bz[i]); m > broker.MaxFieldNT {
+					first = fmt.Sprintf("sensor %s at time %s, |B| = %.4g nT", b.Sensor, strconv.FormatFloat(b.Time[i], 'f', -1, 64), m)
+					break
+				}
+			}
+		}
+		n += k
+		nb++
+	}
+	if n == 0 {
+		return ""
+	}
+	nbText := "1 batch"
+	if nb > 1 {
+		nbText = fmt.Sprintf("%d batches", nb)
+	}
+	return fmt.Sprintf("%s: %s with |B| above 0.1 T (%g nT), which no magnetometer reading of a buried conductor gives (a corrupt value or a wrong unit; the first: %s): serve refuses the %s holding them to uc.dlq.malformed, and their windows go without those samples",
+		path, plural(n, "reading"), float64(broker.MaxFieldNT), first, nbText)
 }
 
 // repeatedTimes refuses a sensor with two readings at one time (after s

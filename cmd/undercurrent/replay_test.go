@@ -32,3 +32,40 @@ func TestReplayRefusesOversizedBatches(t *testing.T) {
 		t.Errorf("exit %d, %q: want the 100 ms batches to pass the size check (and fail at the absent broker)", code, errOut)
 	}
 }
+
+// A log with a reading far beyond any field (1e200 nT, a corrupt value)
+// was replayed without a word, and serve then stopped on it. replay now
+// warns, naming the sensor, the time and the 0.1 T bound that serve
+// refuses batches beyond (broker.MaxFieldNT), and still sends the log; a
+// log of Earth's-field readings (about 50,000 nT, IGRF) gets no warning.
+func TestReplayWarnsOfFieldAboveBound(t *testing.T) {
+	dir := t.TempDir()
+	write := func(name string, huge bool) string {
+		var sb strings.Builder
+		sb.WriteString("time,bx,by,bz,group\n")
+		for i := range 200 { // 2 s at 100 Hz, two sensors
+			for _, g := range []string{"s1", "s2"} {
+				bx := 12345.678901 + float64(i)
+				if huge && g == "s2" && (i == 150 || i == 151) {
+					bx = -3.1e200
+				}
+				fmt.Fprintf(&sb, "%.2f,%g,%.6f,%.6f,%s\n", 1796104800+float64(i)/100, bx, -6543.21, 45000.123456, g)
+			}
+		}
+		p := filepath.Join(dir, name)
+		if err := os.WriteFile(p, []byte(sb.String()), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		return p
+	}
+	_, out, errOut := cli(t, "replay", write("huge.csv", true), "--asset", "fenwick-lane", "--broker", "nats://127.0.0.1:1", "--wait", "1ms")
+	for _, want := range []string{"2 readings with |B| above 0.1 T", "sensor s2 at time 1796104801.5", "|B| = 3.1e+200 nT", "uc.dlq.malformed"} {
+		if !strings.Contains(out, want) {
+			t.Errorf("output lacks %q:\n%s\n%s", want, out, errOut)
+		}
+	}
+	_, out, _ = cli(t, "replay", write("clean.csv", false), "--asset", "fenwick-lane", "--broker", "nats://127.0.0.1:1", "--wait", "1ms")
+	if strings.Contains(out, "0.1 T") {
+		t.Errorf("clean log warned: %s", out)
+	}
+}

@@ -82,6 +82,9 @@ func Decode(subject, contentType string, data []byte) (*Batch, error) {
 	if err := b.Validate(subject); err != nil {
 		return nil, fmt.Errorf("%w: %w", ErrMalformed, err)
 	}
+	if err := b.CheckField(subject); err != nil {
+		return nil, fmt.Errorf("%w: %w", ErrMalformed, err)
+	}
 	return b, nil
 }
 
@@ -229,6 +232,41 @@ func (b *Batch) Validate(where string) error {
 		}
 	}
 	return nil
+}
+
+// MaxFieldNT is the largest field magnitude |B| a reading may have, nT:
+// 0.1 T, a hundred times the range of a survey fluxgate (about +-1 mT)
+// and two thousand times the Earth's field (the bound locate's unit check
+// uses). No buried conductor gives it (500 kA at 1 m, by Biot-Savart);
+// a reading above it is a corrupt value or a wrong scale, and one such
+// reading (1e200 nT) makes a window's fit overflow.
+const MaxFieldNT = 1e8
+
+// fieldMagnitude is |B| of one reading, without overflow for finite
+// components.
+func fieldMagnitude(bx, by, bz float64) float64 { return math.Hypot(math.Hypot(bx, by), bz) }
+
+// CheckField returns an error naming the first row whose field magnitude
+// |B| is above MaxFieldNT (Decode refuses such a batch). where names the
+// message in errors.
+func (b *Batch) CheckField(where string) error {
+	for i := range b.Bx {
+		if m := fieldMagnitude(b.Bx[i], b.By[i], b.Bz[i]); m > MaxFieldNT {
+			return fmt.Errorf("broker: %s: row %d: field magnitude |B| = %.4g nT (bx %.4g, by %.4g, bz %.4g) is above 0.1 T (%g nT), which no magnetometer reading of a buried conductor gives: a corrupt value or a wrong unit", where, i+1, m, b.Bx[i], b.By[i], b.Bz[i], float64(MaxFieldNT))
+		}
+	}
+	return nil
+}
+
+// FieldOver counts the readings of b whose |B| is above MaxFieldNT.
+func (b *Batch) FieldOver() int {
+	n := 0
+	for i := range b.Bx {
+		if fieldMagnitude(b.Bx[i], b.By[i], b.Bz[i]) > MaxFieldNT {
+			n++
+		}
+	}
+	return n
 }
 
 // EncodeJSON encodes b as a JSON sample batch with explicit times.

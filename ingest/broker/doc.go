@@ -59,7 +59,8 @@
 // payload starting with '{' is JSON.
 //
 // Every batch must be non-empty, have columns of equal length, finite
-// values and strictly increasing times.
+// values, strictly increasing times and readings whose field magnitude
+// |B| is at most MaxFieldNT (0.1 T).
 //
 // # Running against a cluster
 //

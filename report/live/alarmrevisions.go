@@ -79,7 +79,7 @@ func (ar *alarmChunkRun) read(ctx context.Context, q *rangeQuery, from, to float
 			return false
 		}
 		ar.got = append(ar.got, a)
-		ar.last = a.Start
+		ar.last = max(ar.last, a.Start)
 		ar.run.lo = seq + 1
 		n++
 		return true
@@ -88,8 +88,11 @@ func (ar *alarmChunkRun) read(ctx context.Context, q *rangeQuery, from, to float
 	if first {
 		err = q.readRun(ctx, ar.run, from, to, since, f)
 	} else {
-		err = q.resumeRun(ctx, ar.run, to, f)
+		err = q.resumeRun(ctx, ar.run, from, to, f)
 	}
+	// In start order for the search in latestAlarms, also when a message
+	// was stored out of order (see readRun).
+	sort.SliceStable(ar.got, func(i, j int) bool { return ar.got[i].Start < ar.got[j].Start })
 	ar.cut = cut && err == nil
 	return err
 }

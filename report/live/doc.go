@@ -227,7 +227,14 @@
 // interest does) is tried again up to four times within about 0.4 s;
 // an API request that still fails answers 502 and is logged at WARN.
 //
-// That search needs the messages in start order, which a restart breaks:
+// That search needs the messages in start order. The worker keeps them
+// so: the one alarm dated before the asset's data is known, its silent
+// alarm raised before any window, is moved to the first window when
+// that starts earlier (checkSilence). The reading checks every message
+// against the range and ends only at a second message in a row past it,
+// so that an alarm stored out of order by an earlier version neither
+// shows outside the range nor hides the range behind it (readRun). A
+// restart breaks the order otherwise:
 // re-read windows are stored again after newer ones. What holds is that
 // an asset's read revision never decreases along the stream and that
 // within one revision its windows are in order, so the stream is one

@@ -49,6 +49,11 @@ type Estimate struct {
 	Sensors int               `json:"sensors"`
 	Samples int               `json:"samples"`
 	Missing map[string]string `json:"missing,omitempty"`
+	// Spikes counts, per sensor, the readings of a DC window left out of
+	// its mean as spikes: more than 10 robust standard deviations off the
+	// running median of up to 100 neighbours (see despikeDC); absent when
+	// none were. Samples counts the readings used, without them.
+	Spikes map[string]int `json:"spikes,omitempty"`
 	// DataLost is set on the first window after data that the broker
 	// removed (data_retention, data_max_bytes) before the worker read it:
 	// what was lost (the message of the asset's data-lost alarm).

@@ -432,10 +432,19 @@ func (q *rangeQuery) revisionRuns(ctx context.Context) ([]revisionRun, error) {
 
 // readRun calls f, in stream order, with each message of the run whose
 // start is in [from, to) and that was stored at or after since, and its
-// stream sequence, until f returns false, a message starting at or after
-// to is met, or the run ends. Messages of the run must be stored in
-// nondecreasing start order. Every message fetched from the broker
-// (positioning probes included) is counted in
+// stream sequence, until f returns false, two messages in a row starting
+// at or after to are met, or the run ends. Messages of the run are
+// stored in nondecreasing start order, so that the range is found by a
+// binary search; a message out of that order (an asset-wide silent alarm
+// that an earlier version dated by the wall clock before the asset's
+// first window, then followed by data with earlier times) does not end
+// the read nor come out outside the range: every message is checked
+// against [from, to), and the read ends only at a second message in a row
+// past to. Such a message stored before the range makes the search land
+// on it, and the read then goes through the messages between it and the
+// range (a cost, not a wrong answer); the run's first message, when the
+// search passed over it, is looked at too (one lookup). Every message fetched from the
+// broker (positioning probes included) is counted in
 // uc_query_messages_read_total{query}.
 func (q *rangeQuery) readRun(ctx context.Context, run revisionRun, from, to float64, since time.Time, f func([]byte, uint64) bool) error {
 	inRange := func(m *jetstream.RawStreamMsg) bool {
@@ -448,22 +457,37 @@ func (q *rangeQuery) readRun(ctx context.Context, run revisionRun, from, to floa
 	if err != nil {
 		return err
 	}
+	if lo > run.lo {
+		// The run's first message, passed over by the search: in range
+		// only when stored out of order (see above), as the silent alarm
+		// an earlier version dated by the wall clock was, the first of
+		// its asset's alarms. One lookup.
+		h, err := q.next(ctx, run.lo, lo)
+		if err != nil {
+			return err
+		}
+		if h != nil && inRange(h) {
+			if start, ok := startOf(h.Data); ok && start < to && !f(h.Data, h.Sequence) {
+				return nil
+			}
+		}
+	}
 	first, err := q.next(ctx, lo, run.hi)
 	if err != nil || first == nil || !inRange(first) {
 		return err
 	}
-	return q.readFrom(ctx, first, run.hi, to, f)
+	return q.readFrom(ctx, first, run.hi, from, to, f)
 }
 
 // resumeRun is readRun for a run whose messages from sequence run.lo on
 // are all known to be in range from its start (a read that stopped
 // there): it positions with one lookup instead of a search.
-func (q *rangeQuery) resumeRun(ctx context.Context, run revisionRun, to float64, f func([]byte, uint64) bool) error {
+func (q *rangeQuery) resumeRun(ctx context.Context, run revisionRun, from, to float64, f func([]byte, uint64) bool) error {
 	first, err := q.next(ctx, run.lo, run.hi)
 	if err != nil || first == nil {
 		return err
 	}
-	return q.readFrom(ctx, first, run.hi, to, f)
+	return q.readFrom(ctx, first, run.hi, from, to, f)
 }
 
 // readFrom reads for readRun from the message first, before sequence end.
@@ -471,12 +495,37 @@ func (q *rangeQuery) resumeRun(ctx context.Context, run revisionRun, to float64,
 // the query's consumer (see querycons.go), fetched in growing batches,
 // never more than are pending, so that the messages read past the end
 // of the range stay few.
-func (q *rangeQuery) readFrom(ctx context.Context, first *jetstream.RawStreamMsg, end uint64, to float64, f func([]byte, uint64) bool) error {
-	if start, _ := startOf(first.Data); start >= to {
-		return nil
+func (q *rangeQuery) readFrom(ctx context.Context, first *jetstream.RawStreamMsg, end uint64, from, to float64, f0 func([]byte, uint64) bool) error {
+	// f passes on the messages in [from, to) and says whether to read on:
+	// not after the second message in a row at or past to (see readRun).
+	beyond := 0
+	f := func(data []byte, seq uint64) bool {
+		start, ok := startOf(data)
+		switch {
+		case ok && start >= to:
+			beyond++
+			return beyond < 2
+		case ok && start < from:
+			beyond = 0
+			return true
+		}
+		beyond = 0
+		return f0(data, seq)
 	}
-	if !f(first.Data, first.Sequence) || first.Sequence+1 >= end {
-		return nil
+	for {
+		if !f(first.Data, first.Sequence) || first.Sequence+1 >= end {
+			return nil
+		}
+		if beyond == 0 {
+			break
+		}
+		// Past the range: one lookup tells whether the next is too,
+		// without a consumer for a query that returns nothing from here.
+		next, err := q.next(ctx, first.Sequence+1, end)
+		if err != nil || next == nil {
+			return err
+		}
+		first = next
 	}
 	pending, err := q.position(ctx, first.Sequence+1)
 	if err != nil {
@@ -503,9 +552,6 @@ func (q *rangeQuery) readFrom(ctx context.Context, first *jetstream.RawStreamMsg
 			}
 			got++
 			if seq >= end {
-				return nil
-			}
-			if start, ok := startOf(m.Data()); ok && start >= to {
 				return nil
 			}
 			if !f(m.Data(), seq) || seq+1 >= end {

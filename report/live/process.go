@@ -82,6 +82,65 @@ type reduced struct {
 	// calibrated field|, nT (the static field: a sine over whole cycles
 	// averages out).
 	totals []float64
+	// spikes counts, per sensor, the readings left out of a DC window's
+	// mean as spikes (despikeDC); nil when none.
+	spikes map[string]int
+}
+
+// dcSpikeSigmas is how far, in robust standard deviations, a reading of
+// a DC window must depart from the running median of its neighbours to
+// be left out as a spike (despikeDC): the cut-off locate gives the spike
+// filter of a base record without --despike, twice calibrate's default,
+// so that noise is not cut (a 10 sigma departure has a probability of
+// about 1.5e-23 for Gaussian noise, erfc(10/sqrt 2)) and a clean window's
+// mean stays as it was.
+const dcSpikeSigmas = 10
+
+// dcDespikeHalf is the spike filter's half-width for DC windows: each
+// reading against the median of up to 101 readings around it. A fixed
+// sensor's field barely changes within a window, and the spread of so
+// many readings is steady: with calibrate's default of 10 each side the
+// median absolute deviation of 21 readings of Gaussian noise fell to a
+// fifth of its expected value often enough that clean simulated windows
+// lost a reading in every few at 10 robust standard deviations.
+const dcDespikeHalf = 50
+
+// dcDespikeMin is the fewest samples a DC window's sensor needs to be
+// despiked: the reading and dcDespikeHalf neighbours on one side, so that
+// every reading is judged against at least 51.
+const dcDespikeMin = dcDespikeHalf + 1
+
+// despikeDC leaves out of one sensor's DC window the readings that are
+// spikes (a logger glitch, a bit error: one reading of 1e6 nT among 600
+// moved the window mean by 1700 nT and raised over-current and step
+// alarms from a window whose truth was 0 A), found as locate finds spikes
+// in a base record, which like a fixed sensor is a record in time at one
+// place: each reading against the running median of its neighbours and
+// their median absolute deviation (the Hampel filter,
+// calibrate.DespikeBaseColumns), at dcSpikeSigmas over dcDespikeHalf
+// neighbours each side. It returns the number of readings left out.
+func despikeDC(d *sensorData) (int, error) {
+	n := len(d.t)
+	if n < dcDespikeMin {
+		return 0, nil
+	}
+	sp, err := calibrate.DespikeBaseColumns(d.t, [3][]float64{d.bx, d.by, d.bz}, &calibrate.DespikeSettings{Threshold: dcSpikeSigmas, HalfWidth: dcDespikeHalf})
+	if err != nil || sp == nil {
+		return 0, err
+	}
+	drop := make([]bool, n)
+	for _, i := range sp.Rows {
+		drop[i] = true
+	}
+	t := make([]float64, 0, n-len(sp.Rows))
+	bx, by, bz := make([]float64, 0, cap(t)), make([]float64, 0, cap(t)), make([]float64, 0, cap(t))
+	for i := range n {
+		if !drop[i] {
+			t, bx, by, bz = append(t, d.t[i]), append(bx, d.bx[i]), append(by, d.by[i]), append(bz, d.bz[i])
+		}
+	}
+	d.t, d.bx, d.by, d.bz = t, bx, by, bz
+	return len(sp.Rows), nil
 }
 
 // minSamples is the fewest samples a sensor needs in a window to be used:
@@ -151,6 +210,17 @@ func (p *processor) reduce(w *window) *reduced {
 		d := sensorData{i: i, t: sr.T, bx: append([]float64(nil), sr.Bx...), by: append([]float64(nil), sr.By...), bz: append([]float64(nil), sr.Bz...)}
 		if c := p.cals[i]; c != nil {
 			c.ApplyColumns(d.bx, d.by, d.bz)
+		}
+		if a.Mode != "ac" {
+			if k, err := despikeDC(&d); err != nil {
+				r.missing[s.Name] = err.Error()
+				continue
+			} else if k > 0 {
+				if r.spikes == nil {
+					r.spikes = map[string]int{}
+				}
+				r.spikes[s.Name] = k
+			}
 		}
 		use = append(use, d)
 	}
@@ -337,6 +407,7 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 	if len(r.missing) > 0 {
 		e.Missing = r.missing
 	}
+	e.Spikes = r.spikes
 	if a.Mode == "ac" {
 		e.Frequency, e.FrequencySigma = r.freq, r.freqSigma
 		if e.Frequency == 0 {
@@ -348,17 +419,23 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 	if err == nil && len(out.Current) != len(p.names) {
 		err = fmt.Errorf("estimator returned %d currents for %d conductors", len(out.Current), len(p.names))
 	}
+	if err == nil {
+		if what := nonFiniteOutput(out); what != "" {
+			err = fmt.Errorf("the fit gave a non-finite %s", what)
+		}
+	}
 	p.solveErr = err
 	if err != nil {
 		// The estimator's error is for the log (the worker logs
 		// solveErr); the alarm says what an operator can act on.
-		e.Quality = "failed"
 		msg := fmt.Sprintf("no estimate: no sensor gave enough usable samples (at least %d) in the window", minSamples)
 		if len(r.used) > 0 {
 			msg = fmt.Sprintf("no estimate: the fit with the %d usable sensors failed (see the log)", len(r.used))
+			if sn := p.largestField(r); sn != "" && nonFiniteOutput(out) != "" {
+				msg = fmt.Sprintf("no estimate: the fit with the %d usable sensors gave non-finite values (the readings are far beyond any field; the largest, sensor %s's, is %.4g nT)", len(r.used), sn, p.fieldOf(r, sn))
+			}
 		}
-		alarms = append(alarms, p.alarm(w, AlarmDegraded, "", 0, 0, msg))
-		return e, alarms
+		return p.failed(w, e, r.alarms, msg)
 	}
 	e.RMS, e.Chi2, e.DOF, e.Background = out.RMS, out.Chi2, out.DOF, out.Background
 	e.Quality = "good"
@@ -382,6 +459,10 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 			e.Implausible = append(e.Implausible, al.Message)
 		}
 		alarms = append(alarms, imp...)
+	}
+	prev := make(map[string]float64, len(p.prev))
+	for k, v := range p.prev {
+		prev[k] = v
 	}
 	// The held geometry's error, in quadrature with the window's noise.
 	gCur, gPhase := p.geometrySigmas(&r.in, len(p.names))
@@ -440,7 +521,117 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 				fmt.Sprintf("go and return currents differ by %.4g A (leakage?)", imb)))
 		}
 	}
+	if what := nonFiniteEstimate(e, alarms); what != "" {
+		// Not encodable (JSON has no infinities): the window fails
+		// rather than stopping the asset. The step alarm's previous
+		// currents are left as they were before the window.
+		p.solveErr = fmt.Errorf("the estimate has a non-finite %s", what)
+		p.prev = prev
+		return p.failed(w, e, r.alarms, fmt.Sprintf("no estimate: the window's estimate came out with a non-finite %s (see the log)", what))
+	}
 	return e, alarms
+}
+
+// failed makes e a failed estimate, without currents or fit results, with
+// the reduction's alarms (silent and stuck sensors) and a degraded
+// alarm saying msg.
+func (p *processor) failed(w *window, e *Estimate, alarms []Alarm, msg string) (*Estimate, []Alarm) {
+	e.Quality = "failed"
+	e.Conductors = []ConductorEstimate{}
+	e.RMS, e.Chi2, e.DOF, e.Background, e.SigmaScale, e.Implausible = 0, 0, 0, nil, 0, nil
+	out := append([]Alarm(nil), alarms...)
+	return e, append(out, p.alarm(w, AlarmDegraded, "", 0, 0, msg))
+}
+
+// nonFiniteOutput names the first non-finite number of an estimator's
+// output ("" when every one is finite).
+func nonFiniteOutput(out *SolveOutput) string {
+	if out == nil {
+		return ""
+	}
+	bad := func(v ...float64) bool {
+		for _, x := range v {
+			if math.IsNaN(x) || math.IsInf(x, 0) {
+				return true
+			}
+		}
+		return false
+	}
+	switch {
+	case bad(out.Current...):
+		return "current"
+	case bad(out.CurrentSigma...):
+		return "current sigma"
+	case bad(out.Phase...) || bad(out.PhaseSigma...):
+		return "phase"
+	case out.Background != nil && bad(out.Background[:]...):
+		return "background"
+	case bad(out.Chi2):
+		return "chi-square"
+	case bad(out.RMS):
+		return "RMS residual"
+	}
+	return ""
+}
+
+// nonFiniteEstimate names the first non-finite number of an estimate or
+// its alarms ("" when all are finite, as JSON needs).
+func nonFiniteEstimate(e *Estimate, alarms []Alarm) string {
+	bad := func(x float64) bool { return math.IsNaN(x) || math.IsInf(x, 0) }
+	badp := func(x *float64) bool { return x != nil && bad(*x) }
+	if bad(e.RMS) || bad(e.Chi2) || bad(e.SigmaScale) || bad(e.Frequency) || bad(e.FrequencySigma) {
+		return "fit result"
+	}
+	if e.Background != nil && (bad(e.Background[0]) || bad(e.Background[1]) || bad(e.Background[2])) {
+		return "background"
+	}
+	for _, c := range e.Conductors {
+		if bad(c.Current) || bad(c.CurrentSigma) || bad(c.CurrentSigmaGeometry) || badp(c.Phase) || badp(c.PhaseSigma) || badp(c.PhaseSigmaGeometry) {
+			return "current of conductor " + c.Name
+		}
+	}
+	for _, a := range alarms {
+		if bad(a.Value) || bad(a.Threshold) {
+			return a.Kind + " alarm value"
+		}
+	}
+	return ""
+}
+
+// largestField names the used sensor whose reduced reading is largest
+// ("" when none is used).
+func (p *processor) largestField(r *reduced) string {
+	best, name := -1.0, ""
+	for k, i := range r.used {
+		if m := p.fieldAt(r, k); m > best || math.IsNaN(m) {
+			best, name = m, p.asset.Sensors[i].Name
+		}
+	}
+	return name
+}
+
+// fieldOf is the magnitude of the reduced reading of used sensor name.
+func (p *processor) fieldOf(r *reduced, name string) float64 {
+	for k, i := range r.used {
+		if p.asset.Sensors[i].Name == name {
+			return p.fieldAt(r, k)
+		}
+	}
+	return math.NaN()
+}
+
+// fieldAt is the magnitude of the k-th used sensor's reduced reading (the
+// mean field for DC, the phasor's for AC), computed without overflow.
+func (p *processor) fieldAt(r *reduced, k int) float64 {
+	if k < len(r.in.Fields) {
+		f := r.in.Fields[k]
+		return math.Hypot(math.Hypot(f[0], f[1]), f[2])
+	}
+	if k < len(r.in.Phasors) {
+		f := r.in.Phasors[k]
+		return math.Hypot(math.Hypot(cmplxAbs(f[0]), cmplxAbs(f[1])), cmplxAbs(f[2]))
+	}
+	return math.NaN()
 }
 
 // Checks of an implausible window, the subjects of its implausible alarms.
@@ -471,7 +662,7 @@ func (p *processor) implausible(w *window, r *reduced, out *SolveOutput) []Alarm
 		level, what := math.NaN(), ""
 		if out.Background != nil {
 			b := out.Background
-			level, what = math.Sqrt(b[0]*b[0]+b[1]*b[1]+b[2]*b[2]), "the fitted uniform background"
+			level, what = math.Hypot(math.Hypot(b[0], b[1]), b[2]), "the fitted uniform background"
 		} else if a.Mode == "ac" && len(r.totals) > 0 {
 			v := append([]float64(nil), r.totals...)
 			sort.Float64s(v)

@@ -44,6 +44,19 @@ type checkpoint struct {
 	// if this worker stops before.
 	DataLost   string  `json:"data_lost,omitempty"`
 	DataLostAt float64 `json:"data_lost_at,omitempty"`
+	// SilentEarly is the asset's silent alarm raised before its first
+	// published window (see checkSilence), until that window is published.
+	SilentEarly *earlySilence `json:"silent_early,omitempty"`
+}
+
+// earlySilence is an asset-wide silent alarm raised before the asset's
+// first published window, and where it was stored: the first window may
+// turn out to start before it (data with earlier sensor times), and the
+// alarm is then moved to that window (see placeEarlySilence).
+type earlySilence struct {
+	Alarm Alarm  `json:"alarm"`
+	Seq   uint64 `json:"seq"`   // its UC_ALARM sequence
+	Since string `json:"since"` // the silence's start, as in its message id
 }
 
 func checkpointKey(asset string) string { return "checkpoint." + asset }
@@ -671,6 +684,16 @@ func (w *assetWorker) silenceAtStart(ctx context.Context) (time.Time, bool) {
 // filed for SilentAfter of wall time: the windows it would have had are
 // never opened, so no window raises the per-sensor silent alarms. The
 // alarm is placed in the window after the last published one.
+//
+// Before the asset's first published window it goes in the window of
+// the asset's earliest sample not yet published (an open window, one
+// waiting for commissioning, or a sensor's last sample), or, with no data
+// at all, of the wall clock. Data that comes later may start earlier
+// (a replay of a recorded log, a backfill, a gateway whose clock lags):
+// the alarm is kept in the checkpoint (SilentEarly), and when the first
+// window is published before it, it is moved there (placeEarlySilence),
+// so that the asset's alarms stay stored in window order, which the
+// range queries' binary search needs.
 func (w *assetWorker) checkSilence(now time.Time) error {
 	after := w.svc.site.Service.SilentAfter.Duration
 	quiet := now.Sub(w.lastData)
@@ -680,12 +703,11 @@ func (w *assetWorker) checkSilence(now time.Time) error {
 	w.silent = true
 	L := w.asset.Window.Seconds()
 	idx := w.ck.Window + 1
-	if w.ck.Done == 0 {
+	early := w.ck.Done == 0
+	if early {
 		idx = int64(math.Floor(float64(now.UnixNano()) / 1e9 / L))
-		for _, t := range w.asm.water {
-			if !math.IsInf(t, -1) && w.asm.index(t) < idx {
-				idx = w.asm.index(t)
-			}
+		if k, ok := w.firstUnpublished(); ok {
+			idx = k
 		}
 	}
 	win := &window{Index: idx, Start: float64(idx) * L, End: float64(idx+1) * L}
@@ -693,11 +715,85 @@ func (w *assetWorker) checkSilence(now time.Time) error {
 	al := w.proc.alarm(win, AlarmSilent, "", quiet.Seconds(), after.Seconds(),
 		fmt.Sprintf("no data from any sensor of asset %s for %.0f s of wall time (since %s)", w.asset.Name, quiet.Seconds(), since))
 	w.log.Warn("asset silent", "since", since)
-	if err := w.publishAlarm(al, w.msgID(idx)+"/"+al.Kind+"/"+since); err != nil {
+	ack, err := w.publishAlarmAck(al, w.msgID(idx)+"/"+al.Kind+"/"+since, true)
+	if err != nil {
 		return err
+	}
+	if early {
+		w.ck.SilentEarly = &earlySilence{Alarm: al, Seq: ack.Sequence, Since: since}
 	}
 	w.ck.SilentSince = w.lastData.UTC().Format(time.RFC3339Nano)
 	return w.saveCheckpoint()
+}
+
+// firstUnpublished returns the window index of the asset's earliest
+// sample not yet published: its first open window, its first window
+// waiting for commissioning, or a sensor's last sample; false when the
+// worker holds none.
+func (w *assetWorker) firstUnpublished() (int64, bool) {
+	idx, ok := int64(math.MaxInt64), false
+	take := func(k int64) {
+		if k < idx {
+			idx, ok = k, true
+		}
+	}
+	if len(w.asm.open) > 0 {
+		take(w.asm.open[0].idx)
+	}
+	if len(w.pending) > 0 {
+		take(w.pending[0].Index)
+	}
+	for _, t := range w.asm.water {
+		if !math.IsInf(t, -1) {
+			take(w.asm.index(t))
+		}
+	}
+	return idx, ok
+}
+
+// placeEarlySilence is called before window win is published. When the
+// asset's silent alarm raised before its first published window
+// (SilentEarly) is dated after win, it is stored again in win and the
+// first copy deleted, so that no alarm of the asset is stored before a
+// window that starts earlier; either way it is then no longer early. A
+// copy that cannot be deleted is logged: the range queries tolerate it
+// (see readRun), at the cost of reading past it.
+func (w *assetWorker) placeEarlySilence(win *window) error {
+	es := w.ck.SilentEarly
+	if es == nil {
+		return nil
+	}
+	if win.Index < es.Alarm.Window {
+		al := es.Alarm
+		L := w.asset.Window.Seconds()
+		al.Window, al.Start, al.End = win.Index, float64(win.Index)*L, float64(win.Index+1)*L
+		al.Revision = w.proc.revision
+		if _, err := w.publishAlarmAck(al, w.msgID(win.Index)+"/"+al.Kind+"/"+es.Since, false); err != nil {
+			return err
+		}
+		if err := w.fenced(); err != nil {
+			return err
+		}
+		ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
+		err := w.deleteAlarm(ctx, es.Seq)
+		cancel()
+		if err != nil && !errors.Is(err, jetstream.ErrMsgNotFound) {
+			w.log.Warn("asset silent alarm stored again in the first window, but its first copy could not be deleted: alarm range queries read past it", "seq", es.Seq, "window", win.Index, "err", err)
+		} else {
+			w.log.Info("asset silent alarm moved to the asset's first window, which starts before it", "from_window", es.Alarm.Window, "window", win.Index)
+		}
+	}
+	w.ck.SilentEarly = nil
+	return nil
+}
+
+// deleteAlarm deletes message seq of the alarm stream.
+func (w *assetWorker) deleteAlarm(ctx context.Context, seq uint64) error {
+	st, err := w.svc.stores.JS.Stream(ctx, broker.StreamAlarms)
+	if err != nil {
+		return err
+	}
+	return st.DeleteMsg(ctx, seq)
 }
 
 // message is a JSON message on subject with the asset's revision, when it
@@ -715,15 +811,29 @@ func (w *assetWorker) message(subject string, data []byte) *nats.Msg {
 // publishAlarm publishes al on its asset's alarm subject with the message
 // ID id (the broker drops a repeat) and counts it unless it was a repeat.
 func (w *assetWorker) publishAlarm(al Alarm, id string) error {
-	ad, _ := json.Marshal(al)
+	_, err := w.publishAlarmAck(al, id, true)
+	return err
+}
+
+// publishAlarmAck is publishAlarm returning the broker's answer; count
+// false leaves the alarm out of uc_alarms_total (an alarm moved).
+func (w *assetWorker) publishAlarmAck(al Alarm, id string, count bool) (*jetstream.PubAck, error) {
+	ad, err := json.Marshal(al)
+	if err != nil {
+		// A non-finite value (solve leaves none): the alarm is kept,
+		// its numbers left out rather than sending an empty message.
+		w.log.Error("alarm value not encodable: published without it", "kind", al.Kind, "window", al.Window, "value", al.Value, "threshold", al.Threshold)
+		al.Value, al.Threshold = 0, 0
+		ad, _ = json.Marshal(al)
+	}
 	ack, err := w.svc.publishFenced(w.fenced, w.message(broker.AlarmSubject(w.asset.Name, al.Kind), ad), id)
 	if err != nil {
-		return err
+		return nil, err
 	}
-	if !ack.Duplicate {
+	if count && !ack.Duplicate {
 		w.svc.met.alarms.WithLabelValues(w.asset.Name, al.Kind).Inc()
 	}
-	return nil
+	return ack, nil
 }
 
 // refuseRejected dead-letters the batches the assembler held back as far
@@ -977,13 +1087,23 @@ func (w *assetWorker) publishWindow(win *window, r *reduced) error {
 	t2 := time.Now()
 	met.stage.WithLabelValues("reduce").Observe(t1.Sub(t0).Seconds())
 	met.stage.WithLabelValues("solve").Observe(t2.Sub(t1).Seconds())
+	data, err := json.Marshal(est)
+	if err != nil {
+		// solve leaves no non-finite number in an estimate; should one
+		// come through, the window fails instead of stopping the asset
+		// (the same message would fail again on every retry).
+		w.log.Error("estimate not encodable: window published as failed", "window", win.Index, "err", err)
+		est, alarms = w.proc.failed(win, est, r.alarms, fmt.Sprintf("no estimate: the window's estimate could not be encoded (%v; see the log)", err))
+		if data, err = json.Marshal(est); err != nil {
+			return fmt.Errorf("live: asset %s: encode estimate: %w", w.asset.Name, err)
+		}
+	}
 	if est.Quality == "failed" {
 		met.estimates.WithLabelValues(w.asset.Name, "failed").Inc()
 	}
 	w.noteImplausible(win, alarms)
-	data, err := json.Marshal(est)
-	if err != nil {
-		return fmt.Errorf("live: asset %s: encode estimate: %w", w.asset.Name, err)
+	if err := w.placeEarlySilence(win); err != nil {
+		return err
 	}
 	id := w.msgID(win.Index)
 	ack, err := w.svc.publishFenced(w.fenced, w.message(broker.EstimateSubject(w.asset.Name), data), id)
