@@ -113,7 +113,7 @@ func (d *Document) routeOf(r *route.Route) *Route {
 			DepthSigma:   p.DepthSigma,
 			Used:         p.OK && !p.Dipole,
 		}
-		if p.AC {
+		if p.AC && !phaseless(&p.Station) {
 			ph, phs := p.Phase, p.PhaseSigma
 			s.Phase, s.PhaseSigma = &ph, &phs
 		}
@@ -139,6 +139,20 @@ func (d *Document) routeOf(r *route.Route) *Route {
 	}
 	out.setScatter(steps)
 	return out
+}
+
+// phaseless reports whether AC station p is a go-and-return pair's whose
+// net current is within its noise (within currentK sigma of zero, as
+// buildPair judges the group's pair): such a phasor has no phase to
+// speak of, and the station gives none, as the group's pair lists "net
+// current phase" as unidentifiable. Before, the station kept the phase
+// the fit gave the noise: a balanced pair carrying no net current read
+// "0.023 ± 0.027 A ∠42 ± 13°" at one traverse and ∠-148 ± 11° at the
+// next, in the route and in both summaries, and those phases entered the
+// further conductor's phase from conductor 1 (trackPhase), whose
+// scatter-widened sigma they inflated.
+func phaseless(p *route.Station) bool {
+	return p.AC && p.PairNet && !(math.Abs(p.Current) > currentK(true)*p.CurrentSigma)
 }
 
 // MinScatterPairs is the fewest pairs of successive used stations from
