@@ -49,11 +49,6 @@ func (d *Document) whyLeftOut(st *Station, conductor int) leftOutReason {
 			return leftFailed
 		}
 	}
-	for i := range d.Groups {
-		if g := &d.Groups[i]; g.Key == st.Key && strings.Contains(g.Problem, fewDOFMark) {
-			return leftUnplaced
-		}
-	}
 	names := func(kind string) bool {
 		for i := range d.Findings {
 			f := &d.Findings[i]
@@ -63,10 +58,17 @@ func (d *Document) whyLeftOut(st *Station, conductor int) leftOutReason {
 		}
 		return false
 	}
-	switch {
-	case names("dipole-anomaly"):
+	if names("dipole-anomaly") {
 		return leftObject
-	case names("current-step"):
+	}
+	// Before the steps: a step between the stations either side of an
+	// unplaced one may name it.
+	for i := range d.Groups {
+		if g := &d.Groups[i]; g.Key == st.Key && strings.Contains(g.Problem, fewDOFMark) {
+			return leftUnplaced
+		}
+	}
+	if names("current-step") {
 		return leftPastEnd
 	}
 	return leftOther

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"encoding/csv"
 	"math"
 	"os"
 	"path/filepath"
@@ -95,5 +96,34 @@ func TestLocateShortTraverseLeftOutOfRoute(t *testing.T) {
 	}
 	if !said {
 		t.Errorf("no poor-fit finding about T03")
+	}
+	// results.csv gives the reason it was left out.
+	out := filepath.Join(dir, "out")
+	mustCLI(t, "locate", "--group-by", "group", log, "-o", out)
+	f, err := os.Open(filepath.Join(out, "results.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	rows, err := csv.NewReader(f).ReadAll()
+	if err != nil || len(rows) < 2 {
+		t.Fatalf("results.csv: %d rows, %v", len(rows), err)
+	}
+	col := map[string]int{}
+	for i, h := range rows[0] {
+		col[strings.TrimPrefix(h, "\ufeff")] = i
+	}
+	found := false
+	for _, row := range rows[1:] {
+		if row[col["group"]] != "T03" || row[col["conductor"]] != "1" {
+			continue
+		}
+		found = true
+		if row[col["used"]] != "false" || !strings.Contains(row[col["left_out"]], "too few readings to place the conductor") {
+			t.Errorf("T03 in results.csv: used %q, left_out %q", row[col["used"]], row[col["left_out"]])
+		}
+	}
+	if !found {
+		t.Errorf("no conductor-1 row for T03 in results.csv")
 	}
 }
