@@ -256,6 +256,9 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 		pairRoute = followsPair(fits, ac)
 		for _, f := range fits {
 			g, st := buildGroup(&f, ac, ref.of(&f), bs.ProfileMax, pairRoute, bs.SensorHeight)
+			if len(fits) > 1 {
+				unplace(&f, &g, &st)
+			}
 			d.Groups = append(d.Groups, g)
 			stations = append(stations, st)
 		}
@@ -875,6 +878,42 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute boo
 	return g, st
 }
 
+// unplace leaves station st of fit f, and its group g, out of the route's
+// line and chainage when the fit leaves too few degrees of freedom to
+// place the conductor (unplacedFit): the station is placed on the route as
+// a failed fit's is, at its readings' centroid, and left out of the
+// profile, its current compared with its neighbours' in its poor-fit
+// finding (route.Station.Unplaced); the group stays a converged, poor fit.
+// Build calls it when there is a route (two groups or more): a lone
+// traverse keeps its cover check. Before, a traverse cut to its first
+// three readings over a 30 A cable, fitted from 1 degree of freedom with a
+// line 4.6 m aside carrying -0.56 A, steered the route through that line
+// (5 m added to every later chainage) and its current entered the profile
+// unexamined.
+func unplace(f *Fit, g *Group, st *route.Station) {
+	if !st.OK || st.Dipole || f.Dipole || !unplacedFit(f) {
+		return
+	}
+	st.OK, st.Unplaced = false, true
+	st.Point = g.Centroid
+	if !strings.Contains(g.Problem, fewDOFMark) {
+		if g.Problem != "" {
+			g.Problem += "; "
+		}
+		g.Problem += fewDOF(f.Result.DOF)
+		st.Problem = g.Problem
+	}
+}
+
+// unplacedFit reports whether fit f converged but leaves too few degrees
+// of freedom (under MinDOF, the reading noise not given) for its line to
+// place the conductor along the route (route.Station.Unplaced): its noise,
+// and every sigma with it, rests on a few residuals, and the line may be
+// anywhere the few readings allow.
+func unplacedFit(f *Fit) bool {
+	return f.Problem != nil && f.Problem.Sigma == 0 && f.Result != nil && f.Result.DOF < MinDOF
+}
+
 // markPoorGroups gives each converged group that the route's quality check
 // calls poor (a "poor-fit" finding of severity caution or worse about
 // conductor 1) the reason as its Problem, so that the group, the CSV, the
@@ -934,8 +973,12 @@ func fewDOF(dof int) string {
 	if dof > 0 {
 		spread = fmt.Sprintf("is uncertain by about %.0f%% of itself", 100/math.Sqrt(2*float64(dof)))
 	}
-	return fmt.Sprintf("the fit leaves only %d degrees of freedom: the reading noise, estimated from the residuals, %s, and every sigma with it; take more readings across the conductor, or give the reading noise (--noise)", dof, spread)
+	return fmt.Sprintf("the fit leaves only %d %s, %s, and every sigma with it; take more readings across the conductor, or give the reading noise (--noise)", dof, fewDOFMark, spread)
 }
+
+// fewDOFMark is the part of fewDOF's text that marks a group's problem as
+// one (whyLeftOut).
+const fewDOFMark = "degrees of freedom: the reading noise, estimated from the residuals"
 
 func ambiguity(cs []inverse.ModelScore) string {
 	var chosen *inverse.ModelScore

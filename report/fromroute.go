@@ -3,6 +3,7 @@ package report
 import (
 	"math"
 	"sort"
+	"strings"
 
 	"undercurrent/inverse/route"
 )
@@ -27,6 +28,11 @@ func (d *Document) SetRoute(r *route.Route) {
 			pos[p.Key] = i
 		}
 	}
+	// turned[key] holds a group's problem text before and after its
+	// strongest line's DC current was turned (turnProblemCurrent), so that
+	// the route's findings about that group, which quote the problem as
+	// the fit first worded it, are worded again with it.
+	turned := map[string][2]string{}
 	for i := range d.Groups {
 		g := &d.Groups[i]
 		k, ok := pos[g.Key]
@@ -48,9 +54,12 @@ func (d *Document) SetRoute(r *route.Route) {
 				flipProfile(g.Profile)
 			}
 			if j == 0 && s.Phase == nil {
-				// A DC current changed sign: the no-current problem,
-				// which gives it, says so too.
-				g.Problem = turnNoCurrentHead(g.Problem, s, false)
+				// A DC current changed sign: a problem that gives it
+				// (no current found), says so too.
+				if from, to, ok := turnProblemCurrent(g.Problem, s); ok {
+					turned[g.Key] = [2]string{from, to}
+					g.Problem = strings.Replace(g.Problem, from, to, 1)
+				}
 			}
 		}
 	}
@@ -62,7 +71,22 @@ func (d *Document) SetRoute(r *route.Route) {
 		return *a < *b
 	})
 	for _, f := range r.Findings {
-		d.Findings = append(d.Findings, findingOf(f))
+		nf := findingOf(f)
+		if f.Kind == route.KindPoorFit {
+			// The poor-fit finding of a failed fit quotes its problem:
+			// the same current, with the same sign, as the group's
+			// problem and sources[0].current_a give it. Before, the
+			// finding kept the sign the fit had before its line was
+			// turned along the route ("0.0023 ± 0.0023 A" in the
+			// finding, "-0.0023 ± 0.0023 A" in the group's problem and
+			// the table).
+			for _, k := range f.Keys {
+				if t, ok := turned[k]; ok {
+					nf.Message = strings.Replace(nf.Message, t[0], t[1], 1)
+				}
+			}
+		}
+		d.Findings = append(d.Findings, nf)
 	}
 	SortFindings(d.Findings)
 }
@@ -89,7 +113,7 @@ func (d *Document) routeOf(r *route.Route) *Route {
 			DepthSigma:   p.DepthSigma,
 			Used:         p.OK && !p.Dipole,
 		}
-		if p.AC {
+		if p.AC && !phaseless(&p.Station) {
 			ph, phs := p.Phase, p.PhaseSigma
 			s.Phase, s.PhaseSigma = &ph, &phs
 		}
@@ -115,6 +139,20 @@ func (d *Document) routeOf(r *route.Route) *Route {
 	}
 	out.setScatter(steps)
 	return out
+}
+
+// phaseless reports whether AC station p is a go-and-return pair's whose
+// net current is within its noise (within currentK sigma of zero, as
+// buildPair judges the group's pair): such a phasor has no phase to
+// speak of, and the station gives none, as the group's pair lists "net
+// current phase" as unidentifiable. Before, the station kept the phase
+// the fit gave the noise: a balanced pair carrying no net current read
+// "0.023 ± 0.027 A ∠42 ± 13°" at one traverse and ∠-148 ± 11° at the
+// next, in the route and in both summaries, and those phases entered the
+// further conductor's phase from conductor 1 (trackPhase), whose
+// scatter-widened sigma they inflated.
+func phaseless(p *route.Station) bool {
+	return p.AC && p.PairNet && !(math.Abs(p.Current) > currentK(true)*p.CurrentSigma)
 }
 
 // MinScatterPairs is the fewest pairs of successive used stations from

@@ -1163,7 +1163,7 @@ func trackHeadline(d *Document, t *Track) string {
 	if len(used) > 0 {
 		a, b := used[0], used[len(used)-1]
 		line += fmt.Sprintf("; %s %s A%s at %s and %s A%s at %s", current,
-			pm(a.Current, a.CurrentSigma), stationPhase(a), a.Key, pm(b.Current, b.CurrentSigma), stationPhase(b), b.Key)
+			pm(a.Current, a.CurrentSigma), stationPhase(d, a), a.Key, pm(b.Current, b.CurrentSigma), stationPhase(d, b), b.Key)
 		switch flowAgainst(d, used) {
 		case 1:
 			line += ", flowing the opposite way to conductor 1 (a return path, for example)"
@@ -1197,7 +1197,7 @@ func trackHeadline(d *Document, t *Track) string {
 // disagree). Each current is signed along its station's Direction, so the
 // flows are compared as vectors, not by sign.
 func flowAgainst(d *Document, used []Station) int {
-	if d.Route == nil {
+	if d.Route == nil || d.Signal.Mode == SignalAC {
 		return 0
 	}
 	main := map[string]Station{}

@@ -1,6 +1,9 @@
 package report
 
-import "slices"
+import (
+	"slices"
+	"strings"
+)
 
 // leftOutReason is why a route's station was left out of its conductor's
 // current and cover profile (Station.Used false).
@@ -20,6 +23,10 @@ const (
 	// a line far deeper and weaker than the conductor, and the current-step
 	// finding that the conductor appears to end names its group.
 	leftPastEnd
+	// leftUnplaced: its group's fit converged but leaves too few degrees
+	// of freedom to place the conductor (unplacedFit, its problem says
+	// so): it takes no part in the route's line and chainage either.
+	leftUnplaced
 	// leftOther: left out for a reason the document does not name.
 	leftOther
 )
@@ -27,8 +34,9 @@ const (
 // whyLeftOut says why station st of the route of conductor (0 for the
 // route, conductor 1; else a further conductor's Track.Number) was left
 // out. The route marks a station unused when its group's fit failed
-// (Group.OK false), when it is taken for a magnetised object, or when it
-// lies past the conductor's end; the document keeps only Used, so the
+// (Group.OK false), when the fit leaves too few degrees of freedom to
+// place the conductor, when it is taken for a magnetised object, or when
+// it lies past the conductor's end; the document keeps only Used, so the
 // reason is read from the group and the findings that name it. Before, a
 // station past an end was called a magnetised object in the figures'
 // legend and in results.csv's left_out, where no object finding exists.
@@ -50,10 +58,17 @@ func (d *Document) whyLeftOut(st *Station, conductor int) leftOutReason {
 		}
 		return false
 	}
-	switch {
-	case names("dipole-anomaly"):
+	if names("dipole-anomaly") {
 		return leftObject
-	case names("current-step"):
+	}
+	// Before the steps: a step between the stations either side of an
+	// unplaced one may name it.
+	for i := range d.Groups {
+		if g := &d.Groups[i]; g.Key == st.Key && strings.Contains(g.Problem, fewDOFMark) {
+			return leftUnplaced
+		}
+	}
+	if names("current-step") {
 		return leftPastEnd
 	}
 	return leftOther

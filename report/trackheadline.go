@@ -304,7 +304,7 @@ func trackSummary(d *Document, t *Track) string {
 	if len(used) > 0 {
 		a, b := used[0], used[len(used)-1]
 		line += fmt.Sprintf("; %s %s A%s at %s and %s A%s at %s",
-			cur, pm(a.Current, a.CurrentSigma), stationPhase(a), a.Key, pm(b.Current, b.CurrentSigma), stationPhase(b), b.Key)
+			cur, pm(a.Current, a.CurrentSigma), stationPhase(d, a), a.Key, pm(b.Current, b.CurrentSigma), stationPhase(d, b), b.Key)
 		if !t.Route.PairNet {
 			line += crossingFlow(used)
 		}

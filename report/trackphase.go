@@ -115,8 +115,13 @@ func (d *Document) addTrackPhases() {
 }
 
 // stationPhase words station s's AC phase, " ∠-110.0 ± 0.02°"; "" for DC.
-func stationPhase(s Station) string {
+// An AC station without a phase (a go-and-return pair whose net current
+// is within its noise, phaseless) reads " (phase not determined)".
+func stationPhase(d *Document, s Station) string {
 	if s.Phase == nil || s.PhaseSigma == nil {
+		if d != nil && d.Signal.Mode == SignalAC && s.Used {
+			return " (phase not determined)"
+		}
 		return ""
 	}
 	return " ∠" + pm(*s.Phase, *s.PhaseSigma) + "°"

@@ -118,21 +118,29 @@ func noCurrentProblem(f *Fit, res *inverse.Result, s *inverse.SourceEstimate, ac
 // noCurrentHead is the start of noCurrentProblem's text, giving the
 // strongest line's current as signed along its direction. SetRoute, which
 // turns a group's lines along the route, words it again with the turned
-// sign (turnNoCurrentHead), so that the text and the group's
-// sources[0].current_a agree.
+// sign (turnProblemCurrent), so that the text, the group's
+// sources[0].current_a and the poor-fit finding that quotes the text
+// agree.
 func noCurrentHead(current, sigma float64, ac bool) string {
 	return fmt.Sprintf("no current found: the strongest line's current, %s A, is within %.3g sigma of zero", PlusMinus(current, sigma), currentK(ac))
 }
 
-// turnNoCurrentHead rewords the head of a no-current problem for a
-// strongest line s whose direction, and so its DC current's sign, was
-// just reversed (flipSource): the text had -s.Current.
-func turnNoCurrentHead(problem string, s *Source, ac bool) string {
-	old := noCurrentHead(-s.Current, s.CurrentSigma, ac)
-	if !strings.HasPrefix(problem, old) {
-		return problem
+// turnProblemCurrent finds in problem, the problem of a group whose
+// strongest line s had its direction, and so its DC current's sign, just
+// reversed (flipSource), the current as the text gave it before
+// ("current, -0.0023 ± 0.0023 A,": noCurrentHead, nearSensorProblem and
+// undetectedProblem word it so), and returns it (from) with its
+// rewording (to); ok is false when the text gives no such current.
+func turnProblemCurrent(problem string, s *Source) (from, to string, ok bool) {
+	if !strings.HasPrefix(problem, "no current found") {
+		return "", "", false
 	}
-	return noCurrentHead(s.Current, s.CurrentSigma, ac) + problem[len(old):]
+	from = "current, " + PlusMinus(-s.Current, s.CurrentSigma) + " A,"
+	to = "current, " + PlusMinus(s.Current, s.CurrentSigma) + " A,"
+	if from == to || !strings.Contains(problem, from) {
+		return "", "", false
+	}
+	return from, to, true
 }
 
 // alongRatio is the largest ratio of the spread of a group's readings across

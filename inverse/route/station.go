@@ -65,6 +65,16 @@ type Station struct {
 	// as well as one", "azimuth unidentifiable"), empty when it is sound.
 	// A station with OK true and a Problem is used but reported.
 	Problem string
+	// Unplaced is true, with OK false, when the fit converged but is too
+	// poorly determined to place the conductor (a traverse of a handful of
+	// readings, whose noise and every sigma rest on too few residuals):
+	// like a failed fit's, the station takes no part in the route's line,
+	// chainage or direction, and none in steps or cover (Point should be
+	// the centroid of its readings); unlike one, its Current (signed along
+	// Dir) is an estimate, and its poor-fit finding compares it with the
+	// usable stations either side, so that it is neither taken into the
+	// profile nor passed over in silence. Problem says why.
+	Unplaced bool
 	// Dipole is true when the caller found the group's field better
 	// explained by a point dipole (a magnetised object) than by a current.
 	// Such a station is reported and not used for steps or cover.

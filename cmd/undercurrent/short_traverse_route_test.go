@@ -1,0 +1,129 @@
+package main
+
+import (
+	"encoding/csv"
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"undercurrent/report"
+)
+
+// TestLocateShortTraverseLeftOutOfRoute: the two-conductors scenario (a 30 A
+// and a -20 A cable 3 m apart running north, five traverses 3 m apart;
+// testdata/scenarios/two-conductors.toml, simulated) with traverse T03 cut
+// to its first three readings, as a logger stopping at the start of a
+// traverse leaves it. Its fit leaves 1 degree of freedom and put a line
+// 4.6 m west of the 30 A cable carrying -0.56 A. The route went through
+// that line: 17 m long for the 12 m walked, every chainage past T03 5 m
+// too long, and the -0.56 A entered the current profile with no word on
+// it. The truth is the scenario's geometry: the cable crosses the
+// traverses at north -6, -3, 0, 3 and 6 m, so their chainages are 0, 3,
+// 6, 9 and 12 m. Now T03 is left out of the route's line and chainage
+// (used false; its chainage is its readings' centre, north 0, taken onto
+// the route) and of the profile, and its poor-fit finding compares its
+// current with T02's and T04's.
+func TestLocateShortTraverseLeftOutOfRoute(t *testing.T) {
+	_, path := scenario(t, "two-conductors.toml")
+	dir := t.TempDir()
+	full := filepath.Join(dir, "full.csv")
+	mustCLI(t, "simulate", path, "-o", full)
+	data, err := os.ReadFile(full)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var kept []string
+	t03 := 0
+	for _, line := range strings.Split(strings.TrimRight(string(data), "\n"), "\n") {
+		if strings.HasSuffix(line, ",T03") {
+			if t03++; t03 > 3 {
+				continue
+			}
+		}
+		kept = append(kept, line)
+	}
+	if t03 < 20 {
+		t.Fatalf("T03 has %d readings in the simulated log; the scenario has changed", t03)
+	}
+	log := filepath.Join(dir, "short.csv")
+	if err := os.WriteFile(log, []byte(strings.Join(kept, "\n")+"\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	doc := locateInto[report.Document](t, "--group-by", "group", log)
+	for _, g := range doc.Groups {
+		if g.Key == "T03" && !(g.OK && g.DOF < report.MinDOF) {
+			t.Fatalf("T03: ok %v, %d degrees of freedom: the case this test is for did not arise", g.OK, g.DOF)
+		}
+	}
+	r := doc.Route
+	if r == nil || len(r.Stations) != 5 {
+		t.Fatalf("route %+v, want five stations", r)
+	}
+	if math.Abs(r.Length-12) > 0.05 {
+		t.Errorf("route length %.3f m, want 12 m (the walk's), within 0.05 m", r.Length)
+	}
+	var t03st *report.Station
+	for i, s := range r.Stations {
+		if want := 3 * float64(i); s.Key != "T0"+string(rune('1'+i)) || math.Abs(s.Chainage-want) > 0.05 {
+			t.Errorf("station %d: %s at chainage %.3f m, want T0%d at %.0f m", i, s.Key, s.Chainage, i+1, want)
+		}
+		if s.Key == "T03" {
+			t03st = &r.Stations[i]
+		} else if !s.Used {
+			t.Errorf("%s: not used", s.Key)
+		}
+	}
+	if t03st == nil {
+		t.Fatal("no station T03")
+	}
+	if t03st.Used {
+		t.Errorf("T03, fitted from 1 degree of freedom, is used in the profile")
+	}
+	said := false
+	for _, f := range doc.Findings {
+		if f.Kind != "poor-fit" || len(f.Groups) != 1 || f.Groups[0] != "T03" {
+			continue
+		}
+		said = true
+		for _, want := range []string{"left out of the route's line and chainage",
+			"its current, " + report.PlusMinus(t03st.Current, t03st.CurrentSigma) + " A,", "T02's", "T04's", "over 3 sigma from each"} {
+			if !strings.Contains(f.Message, want) {
+				t.Errorf("T03's finding %q does not say %q", f.Message, want)
+			}
+		}
+	}
+	if !said {
+		t.Errorf("no poor-fit finding about T03")
+	}
+	// results.csv gives the reason it was left out.
+	out := filepath.Join(dir, "out")
+	mustCLI(t, "locate", "--group-by", "group", log, "-o", out)
+	f, err := os.Open(filepath.Join(out, "results.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	rows, err := csv.NewReader(f).ReadAll()
+	if err != nil || len(rows) < 2 {
+		t.Fatalf("results.csv: %d rows, %v", len(rows), err)
+	}
+	col := map[string]int{}
+	for i, h := range rows[0] {
+		col[strings.TrimPrefix(h, "\ufeff")] = i
+	}
+	found := false
+	for _, row := range rows[1:] {
+		if row[col["group"]] != "T03" || row[col["conductor"]] != "1" {
+			continue
+		}
+		found = true
+		if row[col["used"]] != "false" || !strings.Contains(row[col["left_out"]], "too few readings to place the conductor") {
+			t.Errorf("T03 in results.csv: used %q, left_out %q", row[col["used"]], row[col["left_out"]])
+		}
+	}
+	if !found {
+		t.Errorf("no conductor-1 row for T03 in results.csv")
+	}
+}
