@@ -434,6 +434,12 @@ func (v *view) groupRow(g *Group) groupRow {
 		if g.Problem != "" {
 			r.StatusShort, r.Status = r.Status, r.Status+": "+g.Problem
 		}
+	case v.D.BaseGapOnly(g):
+		// A sound fit over readings that fell in a gap of the base record:
+		// the base correction under it needs review, not the fit, as the
+		// terminal's summary counts it ("marked for a base gap").
+		r.StatusShort = "sound; marked for review"
+		r.Status = r.StatusShort + ": " + g.Problem
 	case g.Problem != "":
 		// Converged and used, but poor or ambiguous: the route's findings
 		// say "used with care".
