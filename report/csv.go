@@ -19,7 +19,7 @@ import (
 // whose current_a is then empty (the net current's phase for AC, along the
 // pair's azimuth_deg).
 var csvHeader = []string{
-	"chainage_m", "route_chainage_m", "group", "source", "conductor", "kind",
+	"chainage_m", "route_chainage_m", "group", "source", "conductor", "kind", "signal",
 	"current_a", "current_sigma_a", "phase_deg", "phase_sigma_deg",
 	"depth_m", "depth_sigma_m", "depth_reference", "cover_m", "cover_sigma_m",
 	"moment_a_m2", "moment_sigma_a_m2",
@@ -54,7 +54,10 @@ var csvCol = func() map[string]int {
 // further conductor's route, from its first station, for a source
 // followed as one (Track.Route), else along the route (conductor 1);
 // route_chainage_m is the group's chainage along the route whatever the
-// source (Group.Chainage). depth_reference names what depth_m is measured
+// source (Group.Chainage). signal is the run's signal on every row,
+// "dc" or "ac-rms-" with the frequency ("ac-rms-50Hz", signalCell): a DC
+// current_a is signed along the row's azimuth_deg, an AC one is RMS with
+// its phase in phase_deg. depth_reference names what depth_m is measured
 // from, as results.json's depth_reference.kind does (DepthBelowSensors or
 // DepthBelowGround). cover_sigma_m is the depth sigma and the ground
 // level's sigma in quadrature, as the cover findings use. moment_a_m2 and
@@ -110,6 +113,7 @@ func WriteCSV(w io.Writer, d *Document) error {
 			set("group", textCell(g.Key))
 			set("source", src)
 			set("kind", kind)
+			set("signal", d.signalCell())
 			set("east_m", fix(p[0], 3))
 			set("north_m", fix(p[1], 3))
 			set("up_m", fix(p[2], 3))

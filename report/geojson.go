@@ -27,6 +27,10 @@ const (
 // so that nobody takes them for longitudes and latitudes. The top-level
 // member "depth_reference" is the document's DepthReference, as
 // results.json writes it: what every depth_m is measured from. The
+// top-level member "signal" says what every current_a and phase_deg is:
+// its mode ("dc" or "ac", with frequency_hz and window_s for AC, as
+// results.json's signal), "current" in words (DC signed along the Point's
+// azimuth_deg, or AC RMS) and, for AC, "phase_reference" (geoSignal). The
 // top-level member "cautions" (a foreign member, RFC 7946 section 6.1)
 // holds Cautions, so that a crew given only this layer has them.
 //
@@ -247,7 +251,8 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 		Note     string         `json:"coordinate_note,omitempty"`
 		Origin   *Origin        `json:"local_origin,omitempty"`
 		Depth    DepthReference `json:"depth_reference"`
-	}{Cautions, fc.Frame, fc.Note, fc.Origin, d.DepthReference})
+		Signal   geoSignal      `json:"signal"`
+	}{Cautions, fc.Frame, fc.Note, fc.Origin, d.DepthReference, d.geoSignalOf()})
 	if err != nil {
 		return fmt.Errorf("report: GeoJSON: %w", err)
 	}
