@@ -829,6 +829,7 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute boo
 			// share (a cable diving under a road read 0.9 of 2 A at the
 			// bends in its depth, two false steps).
 			g.Notes = append(g.Notes, splitSumNote(sw, ac))
+			g.SummedSources = &[2]int{0, sw.Lines[1]}
 			if g.OK {
 				st.Point, st.Dir = sw.Point, sw.Dir
 			}

@@ -17,9 +17,11 @@ import (
 // are a dipole's (a magnetised object's) alone; the pair_ columns are an
 // unresolved go-and-return pair's (Group.Pair), on both its lines' rows,
 // whose current_a is then empty (the net current's phase for AC, along the
-// pair's azimuth_deg).
+// pair's azimuth_deg); the sum_ columns are on both lines' rows of a
+// same-way split whose sum the route takes (Group.SummedSources): the
+// station's current (and phase), whose shares the rows' current_a give.
 var csvHeader = []string{
-	"chainage_m", "route_chainage_m", "group", "source", "conductor", "kind",
+	"chainage_m", "route_chainage_m", "group", "source", "conductor", "kind", "signal",
 	"current_a", "current_sigma_a", "phase_deg", "phase_sigma_deg",
 	"depth_m", "depth_sigma_m", "depth_reference", "cover_m", "cover_sigma_m",
 	"moment_a_m2", "moment_sigma_a_m2",
@@ -30,6 +32,7 @@ var csvHeader = []string{
 	"pair_current_times_spacing_am", "pair_current_times_spacing_sigma_am",
 	"pair_net_current_a", "pair_net_current_sigma_a",
 	"pair_net_current_phase_deg", "pair_net_current_phase_sigma_deg",
+	"sum_current_a", "sum_current_sigma_a", "sum_phase_deg", "sum_phase_sigma_deg",
 }
 
 // csvCol maps a column name of csvHeader to its index.
@@ -44,17 +47,26 @@ var csvCol = func() map[string]int {
 // WriteCSV writes one row per group and source (a group without sources
 // gets one row with empty source columns), in the order of d.Groups: route
 // order when there is a route. Columns are named in the header row with
-// their units; positions are those of the source's point_m (the group's
-// centroid when it has no source).
+// their units; positions and depths are those of the source's point_m
+// and depth_m (the group's centroid when it has no source), except where
+// the row is a route station placed elsewhere (rowPlace): both lines of a
+// same-way split whose sum the route takes give the station's centre,
+// depth and cover, and a further conductor's row its station's point,
+// where that conductor's route passes, and depth and cover there, as the
+// summaries quote them.
 //
 // conductor is 1 for the first line source of a group (the one the route
-// follows), the track's number for a source followed as a further
-// conductor, and empty otherwise. chainage_m is measured along the row's
+// follows) and for the second line of a same-way split whose sum the route
+// takes, the track's number for a source followed as a further conductor,
+// and empty otherwise. chainage_m is measured along the row's
 // own conductor, as the findings about that conductor give it: along the
 // further conductor's route, from its first station, for a source
 // followed as one (Track.Route), else along the route (conductor 1);
 // route_chainage_m is the group's chainage along the route whatever the
-// source (Group.Chainage). depth_reference names what depth_m is measured
+// source (Group.Chainage). signal is the run's signal on every row,
+// "dc" or "ac-rms-" with the frequency ("ac-rms-50Hz", signalCell): a DC
+// current_a is signed along the row's azimuth_deg, an AC one is RMS with
+// its phase in phase_deg. depth_reference names what depth_m is measured
 // from, as results.json's depth_reference.kind does (DepthBelowSensors or
 // DepthBelowGround). cover_sigma_m is the depth sigma and the ground
 // level's sigma in quadrature, as the cover findings use. moment_a_m2 and
@@ -110,6 +122,7 @@ func WriteCSV(w io.Writer, d *Document) error {
 			set("group", textCell(g.Key))
 			set("source", src)
 			set("kind", kind)
+			set("signal", d.signalCell())
 			set("east_m", fix(p[0], 3))
 			set("north_m", fix(p[1], 3))
 			set("up_m", fix(p[2], 3))
@@ -143,7 +156,8 @@ func WriteCSV(w io.Writer, d *Document) error {
 			continue
 		}
 		for i, s := range g.Sources {
-			row := base(strconv.Itoa(i+1), s.Kind, s.Point)
+			at, depth, depthSigma, _ := d.rowPlace(&g, i, &s)
+			row := base(strconv.Itoa(i+1), s.Kind, at)
 			set := func(col, v string) { row[csvCol[col]] = v }
 			if c := sourceConductor(d, &g, i, &s); c > 0 {
 				set("conductor", strconv.Itoa(c))
@@ -204,11 +218,21 @@ func WriteCSV(w io.Writer, d *Document) error {
 				set("moment_a_m2", fixSig(m, ms, 4))
 				set("moment_sigma_a_m2", sigCell(ms))
 			}
-			set("depth_m", fixSig(s.Depth, s.DepthSigma, 3))
-			set("depth_sigma_m", sigCell(s.DepthSigma))
+			if st := d.summedStation(&g); st != nil && g.summedPart(i) {
+				// A line of a same-way split whose sum the route takes:
+				// the sum, on both lines' rows, beside the line's share.
+				set("sum_current_a", fixSig(st.Current, st.CurrentSigma, 4))
+				set("sum_current_sigma_a", sigCell(st.CurrentSigma))
+				if st.Phase != nil && st.PhaseSigma != nil {
+					set("sum_phase_deg", fixSig(*st.Phase, *st.PhaseSigma, 2))
+					set("sum_phase_sigma_deg", sigCell(*st.PhaseSigma))
+				}
+			}
+			set("depth_m", fixSig(depth, depthSigma, 3))
+			set("depth_sigma_m", sigCell(depthSigma))
 			set("depth_reference", d.DepthReference.Kind)
-			if c, ok := d.cover(s.Depth); ok {
-				cs := d.sourceCoverSigma(s.DepthSigma)
+			if c, ok := d.cover(depth); ok {
+				cs := d.sourceCoverSigma(depthSigma)
 				set("cover_m", fixSig(c, cs, 3))
 				set("cover_sigma_m", sigCell(cs))
 			}
@@ -273,6 +297,10 @@ func sourceConductor(d *Document, g *Group, i int, s *Source) int {
 	case s.Conductor > 0:
 		return s.Conductor
 	case i == 0 && s.Kind != KindDipole && g.OK:
+		return 1
+	case g.SummedSources != nil && i == g.SummedSources[1] && g.OK:
+		// The second line of a same-way split whose sum the route takes:
+		// a share of conductor 1's current.
 		return 1
 	}
 	return 0

@@ -314,6 +314,15 @@ type Group struct {
 	// holds the first source, the group's conductor is the pair; it may
 	// also lie beside a stronger conductor (a cable beside a pair).
 	Pair *Pair `json:"pair,omitempty"`
+	// SummedSources, when not nil, names the two lines (indices in
+	// Sources, the first 0) of a split of the group's first line in two
+	// lines carrying current the same way, in shares the readings do not
+	// part, whose sum the route takes at their centre (one conductor
+	// bending under the readings; see the group's notes): the route's
+	// station for the group holds the sum's current, the centre and its
+	// depth, which results.csv, route.geojson and the tables give on both
+	// lines' rows (both are conductor 1).
+	SummedSources *[2]int `json:"summed_sources,omitempty"`
 }
 
 // Pair is a go-and-return pair of conductors too close together, for

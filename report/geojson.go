@@ -27,6 +27,10 @@ const (
 // so that nobody takes them for longitudes and latitudes. The top-level
 // member "depth_reference" is the document's DepthReference, as
 // results.json writes it: what every depth_m is measured from. The
+// top-level member "signal" says what every current_a and phase_deg is:
+// its mode ("dc" or "ac", with frequency_hz and window_s for AC, as
+// results.json's signal), "current" in words (DC signed along the Point's
+// azimuth_deg, or AC RMS) and, for AC, "phase_reference" (geoSignal). The
 // top-level member "cautions" (a foreign member, RFC 7946 section 6.1)
 // holds Cautions, so that a crew given only this layer has them.
 //
@@ -41,7 +45,11 @@ const (
 //     left out break or interrupt the line, "not_used" lists their group
 //     keys and "gap_note" says why in words;
 //   - "conductor": one Point per line source, at the point on the
-//     conductor nearest the group's readings (point_m), with the group key,
+//     conductor nearest the group's readings (point_m) or, where the
+//     source is a route station placed elsewhere, at the station, with its
+//     depth and cover (rowPlace: the centre of a same-way split whose sum
+//     the route takes, where a further conductor's route passes), so that
+//     each Point lies on its conductor's route line, with the group key,
 //     chainage_m along its own conductor (as results.csv gives it: along a
 //     further conductor's route for a source followed in one, as the
 //     findings about that conductor give it, else along the route),
@@ -54,7 +62,11 @@ const (
 //     conductor, absent for a source in no track, and "used": whether the
 //     station entered its conductor's current and cover profile
 //     (Station.Used; with "left_out", the reason, when false), absent for
-//     a source that is no station of a conductor's route;
+//     a source that is no station of a conductor's route; the two lines of
+//     a same-way split whose sum the route takes (Group.SummedSources) are
+//     both conductor 1, at the lines' centre, and carry the sum the route
+//     takes in sum_current_a (with sum_phase_deg for AC) and their sigmas,
+//     beside each line's share in current_a;
 //   - "pair conductor": a "conductor" Point that is one of the two lines
 //     of an unresolved go-and-return pair (Group.Pair): its depth, cover
 //     and azimuth are the pair's centre's, with the pair's current times
@@ -115,13 +127,14 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 	}
 	for _, g := range d.Groups {
 		for i, s := range g.Sources {
+			at, depth, depthSigma, _ := d.rowPlace(&g, i, &s)
 			props := map[string]any{
 				"group":   g.Key,
 				"source":  i + 1,
-				"depth_m": roundSig(s.Depth, s.DepthSigma, 3),
+				"depth_m": roundSig(depth, depthSigma, 3),
 				"ok":      g.OK,
 			}
-			putSigma(props, "depth_sigma_m", s.DepthSigma)
+			putSigma(props, "depth_sigma_m", depthSigma)
 			props["depth_reference"] = d.DepthReference.Kind
 			if g.Problem != "" {
 				props["problem"] = g.Problem
@@ -141,10 +154,20 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 					props["left_out"] = why
 				}
 			}
-			if c, ok := d.cover(s.Depth); ok {
-				cs := d.sourceCoverSigma(s.DepthSigma)
+			if c, ok := d.cover(depth); ok {
+				cs := d.sourceCoverSigma(depthSigma)
 				props["cover_m"] = roundSig(c, cs, 3)
 				putSigma(props, "cover_sigma_m", cs)
+			}
+			if st := d.summedStation(&g); st != nil && g.summedPart(i) {
+				// A line of a same-way split whose sum the route takes:
+				// the sum, on both lines' Points, beside the line's share.
+				props["sum_current_a"] = roundSig(st.Current, st.CurrentSigma, 4)
+				putSigma(props, "sum_current_sigma_a", st.CurrentSigma)
+				if st.Phase != nil && st.PhaseSigma != nil {
+					props["sum_phase_deg"] = roundSig(*st.Phase, *st.PhaseSigma, 2)
+					putSigma(props, "sum_phase_sigma_deg", *st.PhaseSigma)
+				}
 			}
 			if s.Kind == KindDipole {
 				props["feature"] = "object"
@@ -198,7 +221,7 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 					putSigma(props, "net_current_phase_sigma_deg", *p.NetCurrentPhaseSigma)
 				}
 			}
-			geom := d.point(s.Point)
+			geom := d.point(at)
 			fc.Features = append(fc.Features, feature{Type: "Feature", Geometry: geom, Properties: props})
 		}
 	}
@@ -247,7 +270,8 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 		Note     string         `json:"coordinate_note,omitempty"`
 		Origin   *Origin        `json:"local_origin,omitempty"`
 		Depth    DepthReference `json:"depth_reference"`
-	}{Cautions, fc.Frame, fc.Note, fc.Origin, d.DepthReference})
+		Signal   geoSignal      `json:"signal"`
+	}{Cautions, fc.Frame, fc.Note, fc.Origin, d.DepthReference, d.geoSignalOf()})
 	if err != nil {
 		return fmt.Errorf("report: GeoJSON: %w", err)
 	}

@@ -146,8 +146,10 @@ type groupRow struct {
 	Current, Phase, Depth, Cover, Azimuth []string
 	// Position is each source's position (the point of the conductor
 	// nearest the centre of the group's readings, point_m in the result
-	// document): WGS84 latitude and longitude, signed decimal degrees,
-	// when the survey is geo-referenced, else east and north in metres.
+	// document, or the route station's where it lies elsewhere, as
+	// results.csv gives it: rowPlace): WGS84 latitude and longitude,
+	// signed decimal degrees, when the survey is geo-referenced, else east
+	// and north in metres. Depth and Cover are taken at the same place.
 	Position []string
 	// Conductor numbers each source when further conductors are followed
 	// along the route: 1 for the first, the track's number, or "–". A
@@ -434,6 +436,12 @@ func (v *view) groupRow(g *Group) groupRow {
 		if g.Problem != "" {
 			r.StatusShort, r.Status = r.Status, r.Status+": "+g.Problem
 		}
+	case v.D.BaseGapOnly(g):
+		// A sound fit over readings that fell in a gap of the base record:
+		// the base correction under it needs review, not the fit, as the
+		// terminal's summary counts it ("marked for a base gap").
+		r.StatusShort = "sound; marked for review"
+		r.Status = r.StatusShort + ": " + g.Problem
 	case g.Problem != "":
 		// Converged and used, but poor or ambiguous: the route's findings
 		// say "used with care".
@@ -457,14 +465,18 @@ func (v *view) groupRow(g *Group) groupRow {
 		}
 	}
 	var cur, ph, dep, cov, az []string
+	sum := v.D.summedStation(g)
 	for i, s := range g.Sources {
-		at := s.Point
+		// Where the outputs place the source: a route station placed
+		// elsewhere than its own point gives its place (rowPlace).
+		at, depth, depthSigma, _ := v.D.rowPlace(g, i, &s)
 		if p := g.Pair; p != nil && (i == p.Sources[0] || i == p.Sources[1]) {
 			// An unresolved pair's lines are not placed; its centre is.
 			at = p.Point
 		}
 		switch lon, lat, geo := v.D.wgs84(at); {
-		case g.Pair != nil && i == g.Pair.Sources[1]:
+		case g.Pair != nil && i == g.Pair.Sources[1],
+			sum != nil && i == g.SummedSources[1]:
 			r.Position = append(r.Position, "–")
 		case geo:
 			r.Position = append(r.Position, fix(lat, 7)+", "+fix(lon, 7))
@@ -481,7 +493,7 @@ func (v *view) groupRow(g *Group) groupRow {
 						c += " (" + o + " m)"
 					}
 				}
-			case i == 0 && s.Kind != KindDipole:
+			case i == 0 && s.Kind != KindDipole, sum != nil && i == g.SummedSources[1]:
 				c = "1"
 			}
 			r.Conductor = append(r.Conductor, c)
@@ -526,6 +538,41 @@ func (v *view) groupRow(g *Group) groupRow {
 			}
 			continue
 		}
+		if sum != nil && g.summedPart(i) {
+			// A same-way split whose sum the route takes: the sum, at the
+			// lines' centre, on the first line's entry, the shares on the
+			// second's, as results.csv's sum_current_a and the route give
+			// them.
+			if i == g.SummedSources[0] {
+				cur = append(cur, "sum "+pm(sum.Current, sum.CurrentSigma)+" (lines "+fmt.Sprint(i+1)+" and "+fmt.Sprint(g.SummedSources[1]+1)+")")
+				if s.Phase != nil {
+					if sum.Phase != nil && sum.PhaseSigma != nil {
+						ph = append(ph, pm(*sum.Phase, *sum.PhaseSigma))
+					} else {
+						ph = append(ph, "–")
+					}
+				}
+				dep = append(dep, pm(depth, depthSigma)+" (centre)")
+				if c, ok := v.D.cover(depth); ok {
+					cov = append(cov, pm(c, v.D.sourceCoverSigma(depthSigma)))
+				} else {
+					cov = append(cov, "n/a")
+				}
+			} else {
+				a := g.Sources[g.SummedSources[0]]
+				cur = append(cur, "of "+pm(a.Current, a.CurrentSigma)+" + "+pm(s.Current, s.CurrentSigma))
+				if s.Phase != nil {
+					ph = append(ph, "–")
+				}
+				dep, cov = append(dep, "–"), append(cov, "–")
+			}
+			if unresolved(&s, "azimuth") {
+				az = append(az, fmt.Sprintf("%.1f (assumed)", s.Azimuth))
+			} else {
+				az = append(az, pm(s.Azimuth, s.AzimuthSigma))
+			}
+			continue
+		}
 		cur = append(cur, pm(s.Current, s.CurrentSigma))
 		if s.Phase != nil {
 			ps := 0.0
@@ -534,9 +581,9 @@ func (v *view) groupRow(g *Group) groupRow {
 			}
 			ph = append(ph, pm(*s.Phase, ps))
 		}
-		dep = append(dep, pm(s.Depth, s.DepthSigma))
-		if c, ok := v.D.cover(s.Depth); ok {
-			cov = append(cov, pm(c, v.D.sourceCoverSigma(s.DepthSigma)))
+		dep = append(dep, pm(depth, depthSigma))
+		if c, ok := v.D.cover(depth); ok {
+			cov = append(cov, pm(c, v.D.sourceCoverSigma(depthSigma)))
 		} else {
 			cov = append(cov, "n/a")
 		}

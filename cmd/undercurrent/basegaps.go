@@ -7,7 +7,6 @@ import (
 
 	"undercurrent/calibrate"
 	"undercurrent/ingest"
-	"undercurrent/inverse/route"
 	"undercurrent/report"
 )
 
@@ -16,7 +15,7 @@ import (
 const BaseGapKind = "base-gap"
 
 // baseGapMark starts the Problem of a group marked for a base gap.
-const baseGapMark = "base gap:"
+const baseGapMark = report.BaseGapMark
 
 // baseGapUse is a gap of the base record that readings of one survey log
 // fell in (calibrate.BaseReport.Gaps), with the groups of those readings.
@@ -194,21 +193,12 @@ func fmtGapTime(t float64) string {
 }
 
 // baseGapOnlyGroups counts the groups not sound only because their
-// readings fell in a base gap: fitted, no poor-fit finding, and a Problem
-// that is the base-gap mark alone (baseGapsDocument adds it last, so a
-// Problem starting with it holds nothing else).
+// readings fell in a base gap (report.Document.BaseGapOnly): the crew
+// report's table words the same groups "sound; marked for review".
 func baseGapOnlyGroups(doc *report.Document) int {
-	poor := map[string]bool{}
-	for _, f := range doc.Findings {
-		if f.Kind == string(route.KindPoorFit) && f.Severity != string(route.SeverityInfo) {
-			for _, k := range f.Groups {
-				poor[k] = true
-			}
-		}
-	}
 	n := 0
-	for _, g := range doc.Groups {
-		if g.OK && !poor[g.Key] && strings.HasPrefix(g.Problem, baseGapMark) {
+	for i := range doc.Groups {
+		if doc.BaseGapOnly(&doc.Groups[i]) {
 			n++
 		}
 	}

@@ -2063,6 +2063,24 @@ func pairColumns(g *report.Group, i int) (cur, dep string, ok bool) {
 	return "", "", false
 }
 
+// sourceColumns are the current and depth entries of source i of group g
+// in the terminal's table of groups: an unresolved pair's (pairColumns),
+// a same-way split's whose sum the route takes (the sum and the lines'
+// centre depth, report.Document.SummedColumns), else the source's current
+// and its depth where the outputs place it (report.Document.SourcePlace:
+// a further conductor's where its route passes), as results.csv and
+// report.html give them.
+func sourceColumns(doc *report.Document, g *report.Group, i int) (cur, dep string) {
+	if c, d, ok := pairColumns(g, i); ok {
+		return c, d
+	}
+	if c, d, ok := doc.SummedColumns(g, i); ok {
+		return c, d
+	}
+	_, depth, sigma := doc.SourcePlace(g, i)
+	return sourceCurrent(g.Sources[i]), report.PlusMinus(depth, sigma)
+}
+
 // printSummary prints the groups and findings for a person, then the
 // cautions.
 func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
@@ -2094,11 +2112,8 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 	// to a microampere sigma), so the columns widen to the widest.
 	dw := 16 // depth column
 	for _, g := range doc.Groups {
-		for i, s := range g.Sources {
-			cur, dep := sourceCurrent(s), report.PlusMinus(s.Depth, s.DepthSigma)
-			if c, d, ok := pairColumns(&g, i); ok {
-				cur, dep = c, d
-			}
+		for i := range g.Sources {
+			cur, dep := sourceColumns(doc, &g, i)
 			cw = max(cw, 1+utf8.RuneCountInString(cur))
 			dw = max(dw, 1+utf8.RuneCountInString(dep))
 		}
@@ -2140,11 +2155,8 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 			if i > 0 {
 				k, ch = "", ""
 			}
-			cur, dep := sourceCurrent(s), report.PlusMinus(s.Depth, s.DepthSigma)
-			pc, pd, inPair := pairColumns(&g, i)
-			if inPair {
-				cur, dep = pc, pd
-			}
+			cur, dep := sourceColumns(doc, &g, i)
+			_, _, inPair := pairColumns(&g, i)
 			note := ""
 			if i == 0 && g.Problem != "" {
 				note = "  " + g.Problem
@@ -2152,10 +2164,13 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 			if inPair && i == g.Pair.Sources[0] && g.Problem == "" {
 				note = "  go-and-return pair: centre depth; current and spacing not separable"
 			}
+			if g.SummedSources != nil && i == g.SummedSources[0] && g.Problem == "" && strings.HasPrefix(cur, "sum ") {
+				note = "  two lines carrying current the same way: the route takes their sum, at their centre"
+			}
 			if tracks {
 				c := "-"
 				switch {
-				case i == 0 && s.Kind != report.KindDipole:
+				case i == 0 && s.Kind != report.KindDipole, g.SummedSources != nil && i == g.SummedSources[1]:
 					c = "1"
 				case s.Conductor > 0:
 					c = strconv.Itoa(s.Conductor)

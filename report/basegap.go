@@ -1,0 +1,37 @@
+package report
+
+import (
+	"strings"
+
+	"undercurrent/inverse/route"
+)
+
+// BaseGapMark starts the part of a group's Problem that marks it for a gap
+// in the base-station record its readings fell in (locate adds it last,
+// after any other reason, with the gap in Correction.BaseGaps).
+const BaseGapMark = "base gap:"
+
+// BaseGapOnly reports whether group g is marked for review only because
+// some of its readings fell in a base gap: its fit converged (OK), no
+// poor-fit finding of severity caution or worse names it, and its Problem
+// is the base-gap mark alone (the mark is added last, so a Problem that
+// starts with it holds nothing else). Such a fit is sound; the base
+// correction under it is what needs review. The terminal's summary counts
+// these groups apart ("N marked for a base gap") and the crew report's
+// table words their fit so.
+func (d *Document) BaseGapOnly(g *Group) bool {
+	if !g.OK || !strings.HasPrefix(g.Problem, BaseGapMark) {
+		return false
+	}
+	for _, f := range d.Findings {
+		if f.Kind != string(route.KindPoorFit) || f.Severity == string(route.SeverityInfo) {
+			continue
+		}
+		for _, k := range f.Groups {
+			if k == g.Key {
+				return false
+			}
+		}
+	}
+	return true
+}
