@@ -127,8 +127,11 @@ func checkReference(fits []Fit) (belowGround bool, err error) {
 }
 
 func depthRefName(ref string) string {
-	if ref == "ReferenceZ" {
+	switch ref {
+	case "ReferenceZ":
 		return "ReferenceZ (the ground)"
+	case "":
+		return "an unnamed reference (Result.DepthReference empty)"
 	}
 	return "the " + ref
 }
