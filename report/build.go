@@ -15,7 +15,8 @@ import (
 // Fit is one group's readings and their fit, as Build takes them.
 type Fit struct {
 	// Key is the group's value of the grouping column; empty when the run
-	// was not grouped.
+	// was not grouped. With several fits every key must be non-empty and
+	// unique (Build refuses others): the route places each group by it.
 	Key string
 	// Problem holds the readings that were fitted (Points with Fields for
 	// DC, or Phasors for AC).
@@ -77,10 +78,14 @@ type Fit struct {
 // default given beside it.
 type BuildSettings struct {
 	// SensorHeight is the sensors' height above ground, m, used for cover
-	// when depths are below the sensors' mean height; 0 when unknown.
+	// when depths are below the sensors' mean height; 0 when unknown (then
+	// Build refuses a MinCover unless the fits' depths are below the ground,
+	// inverse.Settings.ReferenceZ).
 	SensorHeight float64
 	// MinCover is the minimum depth of cover to check, m, and CoverCode
-	// the code or practice it comes from; 0 for no check.
+	// the code or practice it comes from; 0 for no check. Checking it needs
+	// the ground: depths below ReferenceZ, or SensorHeight above 0; Build
+	// refuses it otherwise rather than take the ground at the sensors.
 	MinCover  float64
 	CoverCode string
 	// GroundSigma is the one-sigma uncertainty of the ground level
@@ -154,10 +159,18 @@ type BuildSettings struct {
 // Signal.Mode is set to AC when the problems carry phasors, DC otherwise,
 // keeping head's frequency and window. Build returns an error when fits is
 // empty, a fit has neither a result nor an error, or the route cannot be
-// built.
+// built; and when the fits do not make one survey (buildcheck.go): keys
+// repeated, or empty among several fits; DC problems (Fields) mixed with
+// AC ones (Phasors); results whose depths are measured from different
+// references (Result.DepthReference, or ReferenceZ heights more than a
+// micrometre apart); or a MinCover with depths below the sensors and no
+// SensorHeight.
 func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 	if len(fits) == 0 {
 		return nil, errors.New("report: no fits to report")
+	}
+	if err := checkFits(fits, set); err != nil {
+		return nil, err
 	}
 	var bs BuildSettings
 	if set != nil {

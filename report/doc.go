@@ -31,6 +31,14 @@
 // the inverse.Result or the error) and runs the along-route analysis;
 // callers supply what Build cannot know (tool, inputs with NewInput,
 // corrections, frame origin, signal, settings) in the head document.
+// Build takes the fits as one survey and refuses, with an error naming the
+// fits, what it could not report as one: keys that are repeated (or empty
+// among several fits), a mix of DC and AC problems, depths measured from
+// different references (below the ground at ReferenceZ for some fits,
+// below the sensors for others, or two ReferenceZ heights), and a minimum
+// cover to check when the depths are below the sensors and their height
+// above ground is not given (as the command line refuses --min-cover
+// without --sensor-height or --reference-z).
 //
 // # Conventions
 //

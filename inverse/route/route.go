@@ -63,13 +63,18 @@ type Route struct {
 // reports steps in current, shallow cover, poor fits and dipole-like
 // anomalies (see the package documentation for the rules). It returns an
 // error, naming the station, when there are no stations or a value is not
-// finite or a sigma is negative; the stations slice is not modified.
+// finite or a sigma is negative, or when a station whose current is used
+// (OK and not Dipole) has a CurrentSigma of zero (see Station); the stations
+// slice is not modified.
 func Build(stations []Station, set *Settings) (*Route, error) {
 	if len(stations) == 0 {
 		return nil, errors.New("route: no stations")
 	}
 	for i := range stations {
 		if err := check(&stations[i], i); err != nil {
+			return nil, err
+		}
+		if err := checkSigmas(&stations[i], i); err != nil {
 			return nil, err
 		}
 	}
