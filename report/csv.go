@@ -6,7 +6,10 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"slices"
 	"strconv"
+
+	"undercurrent/inverse"
 )
 
 // csvHeader lists the columns of WriteCSV. used and left_out are empty
@@ -17,7 +20,9 @@ import (
 // are a dipole's (a magnetised object's) alone; the pair_ columns are an
 // unresolved go-and-return pair's (Group.Pair), on both its lines' rows,
 // whose current_a is then empty (the net current's phase for AC, along the
-// pair's azimuth_deg).
+// pair's azimuth_deg). uncertainty_note is empty unless the group's sigmas
+// carry a caveat of their own: "robust (Huber) weights: uncertainties are
+// approximate" (inverse.RobustNote) for a fit with --robust.
 var csvHeader = []string{
 	"chainage_m", "route_chainage_m", "group", "source", "conductor", "kind",
 	"current_a", "current_sigma_a", "phase_deg", "phase_sigma_deg",
@@ -30,6 +35,7 @@ var csvHeader = []string{
 	"pair_current_times_spacing_am", "pair_current_times_spacing_sigma_am",
 	"pair_net_current_a", "pair_net_current_sigma_a",
 	"pair_net_current_phase_deg", "pair_net_current_phase_sigma_deg",
+	"uncertainty_note",
 }
 
 // csvCol maps a column name of csvHeader to its index.
@@ -129,6 +135,9 @@ func WriteCSV(w io.Writer, d *Document) error {
 			}
 			set("ok", strconv.FormatBool(g.OK))
 			set("problem", textCell(g.Problem))
+			if slices.Contains(g.Notes, inverse.RobustNote) {
+				set("uncertainty_note", inverse.RobustNote)
+			}
 			return row
 		}
 		if len(g.Sources) == 0 {
