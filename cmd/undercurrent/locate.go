@@ -1744,6 +1744,11 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 			fits[i].Start = time.UnixMilli(int64(math.Round(t * 1e3))).UTC()
 		}
 	}
+	// Positions that scatter from reading to reading (posjitter.go): the
+	// shared-misfit warning names them where they explain the misfit.
+	if w := positionJitter(sv, fits); w != "" {
+		head.Warnings = append(head.Warnings, w)
+	}
 	// report.Build takes no context; its along-route analysis (the dipole
 	// refits above all) can take seconds, so an interrupt is not kept
 	// waiting for it.
