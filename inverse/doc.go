@@ -206,5 +206,14 @@
 // Settings.Robust applies Huber weights by iterative reweighting (Huber, Ann. Math.
 // Statist. 35(1):73-101, 1964; Holland & Welsch, Commun. Statist. A6(9):813-827, 1977):
 // threshold 1.345 robust standard deviations, scale 1.4826 times the median absolute
-// deviation of the residuals (citation details from memory).
+// deviation of the residuals (citation details from memory). The covariance of such a
+// fit is Huber's asymptotic covariance of an M-estimate of regression (Huber, Robust
+// Statistics, Wiley 1981, section 7.6; from memory), with the robust scale s:
+//
+//	cov = K^2 [sum psi(r_i/s)^2 / (n-p)] / [mean psi'(r_i/s)]^2 s^2 (J^T J)^-1
+//	K   = 1 + (p/n) var(psi') / [mean psi']^2
+//
+// J the unweighted full Jacobian; on Gaussian noise its sigmas are 1/sqrt(0.95) times
+// the least-squares ones (TestRobustSigmasGaussianNoise). With Problem.Sigma given the
+// covariance is sigma^2 (J^T W J)^-1 with the final weights W.
 package inverse

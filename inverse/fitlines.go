@@ -1946,23 +1946,7 @@ func (f *fitter) reweight(c *candidate) error {
 		if err != nil {
 			return err
 		}
-		mag := make([]float64, m)
-		for row := range m {
-			var s float64
-			for k := range nr {
-				s += res[row*nr+k] * res[row*nr+k]
-			}
-			mag[row] = math.Sqrt(s / float64(nr))
-		}
-		scale := 1.4826 * median(mag)
-		if nr == 1 {
-			abs := make([]float64, m)
-			med := median(res)
-			for i, v := range res {
-				abs[i] = math.Abs(v - med)
-			}
-			scale = 1.4826 * medianInPlace(abs)
-		}
+		mag, scale := huberScale(res, m, nr)
 		if scale == 0 {
 			return nil
 		}

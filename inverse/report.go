@@ -326,6 +326,21 @@ func (f *fitter) summariseAsIs(c *candidate) (*summary, error) {
 	}
 	su.chi2 = c.rss / (su.sigma * su.sigma)
 	cov0.ScaleSym(su.sigma*su.sigma, cov0)
+	if f.set.Robust && sp.w != nil && !(f.prob.Sigma > 0) {
+		// Huber's asymptotic covariance in place of the weighted least-squares one,
+		// which holds the weights fixed and takes the scale from the down-weighted
+		// residuals (huberCovariance).
+		hc, err := f.huberCovariance(c, k)
+		if err != nil {
+			return nil, err
+		}
+		if hc != nil {
+			cov0 = hc
+		}
+		if err := sp.evaluate(c.x); err != nil {
+			return nil, err
+		}
+	}
 	su.cov = cov0
 	su.zref, su.refName = f.sv.zmean, "mean sensor height"
 	if f.set.ReferenceZ != nil {
@@ -953,7 +968,7 @@ func (f *fitter) report(c *candidate, scores []ModelScore) (*Result, error) {
 		}
 	}
 	if f.set.Robust {
-		r.Notes = append(r.Notes, "robust (Huber) weights: uncertainties are approximate")
+		r.Notes = append(r.Notes, RobustNote)
 	}
 	return r, nil
 }

@@ -39,6 +39,13 @@ type Fit struct {
 	// MeasuredNoise is this group's noise measured apart from the fit, nT
 	// (as BuildSettings.MeasuredNoise, which stands in when it is 0).
 	MeasuredNoise float64
+	// PositionScatter is the scatter of the group's logged positions from
+	// reading to reading, m (from their fourth differences along the
+	// traverse), and PositionMisfit the misfit per field component, nT
+	// RMS, that scatter alone makes to the fit (through the fitted field's
+	// gradient); both 0 when not measured. sharedMisfit names scattered
+	// positions as the cause of a misfit they explain.
+	PositionScatter, PositionMisfit float64
 	// Walk names the survey log the group's readings come from, when a
 	// run reads several, and Start is the time of its first reading (zero
 	// when not known): the route names the walks by them where repeats
@@ -425,8 +432,36 @@ func sharedMisfit(fits []Fit, bs *BuildSettings, rs *route.Settings) string {
 	if n == 1 {
 		lead = fmt.Sprintf("the group's fit misses the readings by %.3g nT RMS per component", m)
 	}
+	if sc, pm := jitterExplains(misses); pm > 0 {
+		return fmt.Sprintf("%s, %.3g times the %.3g nT noise the readings themselves show and %.2g%% of the signal: the positions scatter from reading to reading by %.2g m, which alone makes about %.3g nT of misfit, most on the anomaly's flanks: scattered positions (satellite positioning jitter) are the likely cause, rather than conductors closer together than the fit can part; they flatten and widen the fitted anomaly, so depths read deep and currents high although the fits, measured against one another, may pass as sound; smooth the track or use corrected positions",
+			lead, m/nm, nm, 100*median(frac), sc, pm)
+	}
 	return fmt.Sprintf("%s, %.3g times the %.3g nT noise the readings themselves show and %.2g%% of the signal: the fitted lines do not describe this field (conductors closer together than the fit can part, such as the two cores of a pair, parallel circuits, or an object), so positions, depths and currents may be wrong although the fits, measured against one another, may pass as sound; confirm on site by other means",
 		lead, m/nm, nm, 100*median(frac))
+}
+
+// jitterShare is the least share of a group's misfit beyond its noise
+// (root-sum-square) that the scatter of its positions must make
+// (Fit.PositionMisfit) for sharedMisfit to name the positions as the cause.
+const jitterShare = 0.5
+
+// jitterExplains returns the median position scatter, m, and the median
+// misfit it makes, nT, of the misses when the scatter explains at least
+// jitterShare of the misfit beyond the noise in over half of them; 0, 0
+// otherwise.
+func jitterExplains(misses []misfit) (scatter, misfitNT float64) {
+	var sc, pm []float64
+	for _, m := range misses {
+		excess := math.Sqrt(math.Max(m.rms*m.rms-m.noise*m.noise, 0))
+		if m.posMisfit > 0 && m.posMisfit >= jitterShare*excess {
+			sc = append(sc, m.posScatter)
+			pm = append(pm, m.posMisfit)
+		}
+	}
+	if 2*len(sc) <= len(misses) {
+		return 0, 0
+	}
+	return median(sc), median(pm)
 }
 
 // misfit is a group's fit that misses the noise measured apart from it
@@ -435,6 +470,9 @@ func sharedMisfit(fits []Fit, bs *BuildSettings, rs *route.Settings) string {
 type misfit struct {
 	key              string
 	rms, noise, frac float64
+	// posScatter and posMisfit are the fit's Fit.PositionScatter and
+	// PositionMisfit.
+	posScatter, posMisfit float64
 }
 
 // measuredMisfits returns the number of groups whose noise was measured
@@ -487,7 +525,7 @@ func measuredMisfits(fits []Fit, bs *BuildSettings, rs *route.Settings) (n int, 
 			share = 0
 		}
 		if r > math.Sqrt(limit)*measured && sig > 0 && res.RMS > share*sig {
-			misses = append(misses, misfit{key: f.Key, rms: r, noise: measured, frac: res.RMS / sig})
+			misses = append(misses, misfit{key: f.Key, rms: r, noise: measured, frac: res.RMS / sig, posScatter: f.PositionScatter, posMisfit: f.PositionMisfit})
 		}
 	}
 	return n, misses

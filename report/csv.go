@@ -6,7 +6,10 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"slices"
 	"strconv"
+
+	"undercurrent/inverse"
 )
 
 // csvHeader lists the columns of WriteCSV. used and left_out are empty
@@ -20,6 +23,9 @@ import (
 // pair's azimuth_deg); the sum_ columns are on both lines' rows of a
 // same-way split whose sum the route takes (Group.SummedSources): the
 // station's current (and phase), whose shares the rows' current_a give.
+// uncertainty_note is empty unless the group's sigmas carry a caveat of
+// their own: "robust (Huber) weights: uncertainties are approximate"
+// (inverse.RobustNote) for a fit with --robust.
 var csvHeader = []string{
 	"chainage_m", "route_chainage_m", "group", "source", "conductor", "kind", "signal",
 	"current_a", "current_sigma_a", "phase_deg", "phase_sigma_deg",
@@ -33,6 +39,7 @@ var csvHeader = []string{
 	"pair_net_current_a", "pair_net_current_sigma_a",
 	"pair_net_current_phase_deg", "pair_net_current_phase_sigma_deg",
 	"sum_current_a", "sum_current_sigma_a", "sum_phase_deg", "sum_phase_sigma_deg",
+	"uncertainty_note",
 }
 
 // csvCol maps a column name of csvHeader to its index.
@@ -142,6 +149,9 @@ func WriteCSV(w io.Writer, d *Document) error {
 			}
 			set("ok", strconv.FormatBool(g.OK))
 			set("problem", textCell(g.Problem))
+			if slices.Contains(g.Notes, inverse.RobustNote) {
+				set("uncertainty_note", inverse.RobustNote)
+			}
 			return row
 		}
 		if len(g.Sources) == 0 {

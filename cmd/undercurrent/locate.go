@@ -12,6 +12,7 @@ import (
 	"regexp"
 	"runtime"
 	"runtime/debug"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -1743,6 +1744,11 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 			fits[i].Start = time.UnixMilli(int64(math.Round(t * 1e3))).UTC()
 		}
 	}
+	// Positions that scatter from reading to reading (posjitter.go): the
+	// shared-misfit warning names them where they explain the misfit.
+	if w := positionJitter(sv, fits); w != "" {
+		head.Warnings = append(head.Warnings, w)
+	}
 	// report.Build takes no context; its along-route analysis (the dipole
 	// refits above all) can take seconds, so an interrupt is not kept
 	// waiting for it.
@@ -2081,6 +2087,18 @@ func sourceColumns(doc *report.Document, g *report.Group, i int) (cur, dep strin
 	return sourceCurrent(g.Sources[i]), report.PlusMinus(depth, sigma)
 }
 
+// robustGroups returns the number of groups fitted with Huber weights
+// (inverse.RobustNote among their notes).
+func robustGroups(doc *report.Document) int {
+	n := 0
+	for _, g := range doc.Groups {
+		if slices.Contains(g.Notes, inverse.RobustNote) {
+			n++
+		}
+	}
+	return n
+}
+
 // printSummary prints the groups and findings for a person, then the
 // cautions.
 func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
@@ -2103,6 +2121,11 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 		ref = fmt.Sprintf("below the ground at up = %g m", doc.DepthReference.Z)
 	}
 	fmt.Fprintf(w, "depths are %s; currents %s, one-sigma uncertainties\n", ref, map[bool]string{true: "RMS with phase", false: "DC"}[doc.Signal.Mode == report.SignalAC])
+	if robustGroups(doc) > 0 {
+		// The sigmas of Huber-weighted fits are large-sample ones (the
+		// uncertainty_note of results.csv and each group's notes say so too).
+		fmt.Fprintf(w, "%s (Huber's large-sample covariance)\n", inverse.RobustNote)
+	}
 	tracks := len(doc.Conductors) > 0
 	cw := 18 // current column
 	if doc.Signal.Mode == report.SignalAC {
