@@ -44,6 +44,20 @@ func (w *assetWorker) loadGeometry(ctx context.Context) error {
 		if err := json.Unmarshal(e.Value(), &g); err != nil {
 			return fmt.Errorf("live: asset %s: stored geometry: %w", a.Name, err)
 		}
+		if diff := nameDiff(g.Conductors, a.Conductors); diff != "" {
+			// The site file's conductors were renamed, added or removed
+			// since the asset was commissioned: the stored geometry would
+			// name and fit the old ones while the API lists the new.
+			w.log.Warn("the stored geometry's conductors differ from the site file's ("+diff+"): it is forgotten and the asset commissioned again from the next windows, as POST /api/v1/assets/"+a.Name+"/recommission does",
+				"stored", conductorNames(g.Conductors), "site", conductorNames(a.Conductors))
+			if err := w.fenced(); err != nil {
+				return err
+			}
+			if err := w.svc.stores.State.Delete(ctx, geometryKey(a.Name)); err != nil {
+				return fmt.Errorf("live: asset %s: forget geometry: %w", a.Name, err)
+			}
+			return nil
+		}
 		conds, unc = g.Conductors, g.Uncertainty
 		if unc == nil {
 			w.log.Warn("the stored geometry carries no uncertainty (an earlier version's, or not found when commissioned): the windows' sigmas leave out its error; recommission the asset to have it")
@@ -281,4 +295,52 @@ func sameNames(a, b []ConductorConfig) bool {
 		}
 	}
 	return true
+}
+
+// nameDiff says how the conductor names of stored differ from those of
+// site ("" when they are the same, in any order): those the site file
+// adds and those it no longer has.
+func nameDiff(stored, site []ConductorConfig) string {
+	if sameNames(stored, site) {
+		return ""
+	}
+	has := func(cs []ConductorConfig, name string) bool {
+		for _, c := range cs {
+			if c.Name == name {
+				return true
+			}
+		}
+		return false
+	}
+	var added, gone []string
+	for _, c := range site {
+		if !has(stored, c.Name) {
+			added = append(added, c.Name)
+		}
+	}
+	for _, c := range stored {
+		if !has(site, c.Name) {
+			gone = append(gone, c.Name)
+		}
+	}
+	var parts []string
+	if len(added) > 0 {
+		parts = append(parts, "the site file adds "+strings.Join(added, ", "))
+	}
+	if len(gone) > 0 {
+		parts = append(parts, "the site file no longer has "+strings.Join(gone, ", "))
+	}
+	if len(parts) == 0 {
+		parts = append(parts, fmt.Sprintf("%d conductors stored, %d in the site file", len(stored), len(site)))
+	}
+	return strings.Join(parts, "; ")
+}
+
+// conductorNames returns the names of cs.
+func conductorNames(cs []ConductorConfig) []string {
+	out := make([]string, len(cs))
+	for i, c := range cs {
+		out[i] = c.Name
+	}
+	return out
 }
