@@ -225,7 +225,7 @@ func (sv *survey) backgroundRSS(bg BackgroundModel) (rss float64, ok bool) {
 // scanned returns the one-line fit best, or a better one polished from the best
 // crossings crossingScan finds. A fit whose line is lost (lostLine) is scanned
 // whatever its fall in chi-square, and a fit below scanBelow whose azimuth is free
-// first over lostAzimuths azimuths too (rescanLost): its own azimuth is the noise's
+// (not on a single traverse) first over lostAzimuths azimuths too (rescanLost): its own azimuth is the noise's
 // as much as its position is. Then, at the azimuth the fit's new lines start with (held
 // on a single traverse) or else best's own, when the best crossing leaves a sum of
 // squares below the one best's own crossing leaves by the same measure by more than
@@ -249,7 +249,7 @@ func (f *fitter) scanned(best *candidate) *candidate {
 	if s0, ok := sv.backgroundRSS(f.set.Background); !ok || !(unit > 0) || (s0-best.rss)/unit > scanBelow && !lost {
 		return best
 	}
-	if lost || !holdAz {
+	if lost || !holdAz && !sv.single {
 		best = f.rescanLost(best, holdAz, holdDip, az, dip)
 		if lost {
 			return best
@@ -312,12 +312,13 @@ const lostAzimuths = 12
 // rescanLost returns the one-line fit best, whose line is lost (lostLine) or weak
 // (below scanBelow), or a better one polished from the best crossings crossingScan
 // finds over the whole vertical plane across each of lostAzimuths azimuths (only at
-// az when the azimuth is held), scanKeep of them per azimuth. It costs lostAzimuths scans and up to
+// az when the azimuth is held, or on a single traverse, whose azimuth is searched
+// only about square to it), scanKeep of them per azimuth. It costs lostAzimuths scans and up to
 // scanKeep*lostAzimuths polished starts, run only on a fit that found little or nothing.
 func (f *fitter) rescanLost(best *candidate, holdAz, holdDip bool, az, dip float64) *candidate {
 	sv := f.sv
 	azs := []float64{az}
-	if !holdAz {
+	if !holdAz && !sv.single {
 		azs = azs[:0]
 		for i := range lostAzimuths {
 			azs = append(azs, float64(i)*math.Pi/lostAzimuths)

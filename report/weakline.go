@@ -124,13 +124,19 @@ func noCurrentHead(current, sigma float64, ac bool) string {
 	return fmt.Sprintf("no current found: the strongest line's current, %s A, is within %.3g sigma of zero", PlusMinus(current, sigma), currentK(ac))
 }
 
-// turnNoCurrentHead rewords the head of a no-current problem for a
+// turnNoCurrentHead rewords the current in a no-current problem for a
 // strongest line s whose direction, and so its DC current's sign, was
 // just reversed (flipSource): the text had -s.Current.
 func turnNoCurrentHead(problem string, s *Source, ac bool) string {
 	old := noCurrentHead(-s.Current, s.CurrentSigma, ac)
 	if !strings.HasPrefix(problem, old) {
-		return problem
+		// The other no-current texts (nearSensorProblem,
+		// undetectedProblem) give the current as "current, I A,".
+		was := "current, " + PlusMinus(-s.Current, s.CurrentSigma) + " A,"
+		if !strings.HasPrefix(problem, "no current found") || !strings.Contains(problem, was) {
+			return problem
+		}
+		return strings.Replace(problem, was, "current, "+PlusMinus(s.Current, s.CurrentSigma)+" A,", 1)
 	}
 	return noCurrentHead(s.Current, s.CurrentSigma, ac) + problem[len(old):]
 }
@@ -246,8 +252,8 @@ func nearSensorProblem(f *Fit, res *inverse.Result, ac bool) string {
 	if math.Abs(s.Current) > k*s.CurrentSigma {
 		return ""
 	}
-	return fmt.Sprintf("no current found: the line lies %.2g m below the lowest sensor, within %.2g m of it (two reading spacings or a hundredth of the readings' extent, whichever is more), where a line fits the noise of a few readings; noise alone does so beside one or other of the %d readings, so its current, %s A, would have to exceed %.3g sigma (3 sigma's chance over as many places) to be found, and does not: no conductor is detected under this group, and its position and depth mean nothing",
-		h, within, len(p.Points), PlusMinus(s.Current, s.CurrentSigma), k)
+	return fmt.Sprintf("no current found: the line lies %.2g m below the lowest sensor, within %.2g m of it (two reading spacings or a hundredth of the readings' extent, whichever is more), where a line fits the noise of a few readings; noise alone does so beside one or other of the %d readings, so its current, %s A, would have to exceed %.3g sigma (3 sigma's chance over as many places) to be found, and does not: no conductor is detected under this group, and its position and depth mean nothing%s",
+		h, within, len(p.Points), PlusMinus(s.Current, s.CurrentSigma), k, alongClause(f))
 }
 
 // aboveGroundProblem returns why the strongest line s of a fit is not a buried
