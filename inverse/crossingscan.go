@@ -223,7 +223,10 @@ func (sv *survey) backgroundRSS(bg BackgroundModel) (rss float64, ok bool) {
 }
 
 // scanned returns the one-line fit best, or a better one polished from the best
-// crossings crossingScan finds, at the azimuth the fit's new lines start with (held
+// crossings crossingScan finds. A fit whose line is lost (lostLine) is scanned
+// whatever its fall in chi-square, and a fit below scanBelow whose azimuth is free
+// (not on a single traverse) first over lostAzimuths azimuths too (rescanLost): its own azimuth is the noise's
+// as much as its position is. Then, at the azimuth the fit's new lines start with (held
 // on a single traverse) or else best's own, when the best crossing leaves a sum of
 // squares below the one best's own crossing leaves by the same measure by more than
 // one unit of chi-square (on the readings' noise, noiseFloor). Where best is at the
@@ -242,8 +245,20 @@ func (f *fitter) scanned(best *candidate) *candidate {
 	sv := f.sv
 	unit := f.noiseFloor()
 	unit *= unit
-	if s0, ok := sv.backgroundRSS(f.set.Background); !ok || !(unit > 0) || (s0-best.rss)/unit > scanBelow {
+	lost := f.lostLine(&g)
+	if s0, ok := sv.backgroundRSS(f.set.Background); !ok || !(unit > 0) || (s0-best.rss)/unit > scanBelow && !lost {
 		return best
+	}
+	if lost || !holdAz && !sv.single {
+		best = f.rescanLost(best, holdAz, holdDip, az, dip)
+		if lost {
+			return best
+		}
+		best.sp.unpack(best.x)
+		g = best.sp.geom[0]
+		if !holdAz {
+			az = g.az
+		}
 	}
 	at := [2]float64{g.s, g.z - sv.zmean}
 	if math.Abs(math.Remainder(g.az-az, math.Pi)) > 1e-9 {
@@ -266,6 +281,62 @@ func (f *fitter) scanned(best *candidate) *candidate {
 		}
 		l := sv.geomFrom(sv.scanSeed(nd, az), holdAz, holdDip, dip, f.set.MinDepth)
 		starts = append(starts, start{lines: []lineGeom{l}})
+	}
+	v, err := f.bestOf(starts, false)
+	if err != nil || !(v.rss < best.rss) {
+		return best
+	}
+	v.iters += best.iters
+	return v
+}
+
+// lostLine reports whether a one-line fit's line g ended where the readings do not
+// place it: held at the minimum depth, at the edge of the region searched across the
+// readings, or passing above the sensors (the notes of deriveQuantities). Such a line
+// is no conductor found but the fit's search lost in the noise's basins, whatever the
+// fall in chi-square it gives: on six fixed sensors 0.5 m up, 2 m apart, over a
+// 0.02 A pipe 3.5 m below them (1.1 nT under 0.5 nT of noise and a drifting
+// background), the seeds, read off six points, ended on a line 1.24 m above the
+// sensors at the edge of the region, 2500 units of chi-square below the background
+// alone (scanBelow's bound) but 1950 above the true line.
+func (f *fitter) lostLine(g *lineGeom) bool {
+	return g.z >= g.zHi-1e-9 || g.s <= g.sLo+1e-9 || g.s >= g.sHi-1e-9 || f.aboveSensors(g)
+}
+
+// lostAzimuths is the number of azimuths, evenly over 180 degrees, at which
+// rescanLost scans when the azimuth is free: a lost line's own azimuth says nothing of
+// the conductor's (156 degrees for a pipe at 10 in lostLine's case), and the scan's
+// plane is across one azimuth only.
+const lostAzimuths = 12
+
+// rescanLost returns the one-line fit best, whose line is lost (lostLine) or weak
+// (below scanBelow), or a better one polished from the best crossings crossingScan
+// finds over the whole vertical plane across each of lostAzimuths azimuths (only at
+// az when the azimuth is held, or on a single traverse, whose azimuth is searched
+// only about square to it), scanKeep of them per azimuth. It costs lostAzimuths scans and up to
+// scanKeep*lostAzimuths polished starts, run only on a fit that found little or nothing.
+func (f *fitter) rescanLost(best *candidate, holdAz, holdDip bool, az, dip float64) *candidate {
+	sv := f.sv
+	azs := []float64{az}
+	if !holdAz && !sv.single {
+		azs = azs[:0]
+		for i := range lostAzimuths {
+			azs = append(azs, float64(i)*math.Pi/lostAzimuths)
+		}
+	}
+	var starts []start
+	for _, a := range azs {
+		nodes, _, ok := sv.crossingScan(a, f.set.MinDepth, f.set.Background, [2]float64{}, scanKeep)
+		if !ok {
+			continue
+		}
+		for _, nd := range nodes {
+			l := sv.geomFrom(sv.scanSeed(nd, a), holdAz, holdDip, dip, f.set.MinDepth)
+			starts = append(starts, start{lines: []lineGeom{l}})
+		}
+	}
+	if len(starts) == 0 {
+		return best
 	}
 	v, err := f.bestOf(starts, false)
 	if err != nil || !(v.rss < best.rss) {

@@ -790,7 +790,13 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute boo
 	// more than chance allows (inverse.HeldAnglesRejectedNote): the current
 	// and position are biased beyond their sigmas.
 	held := heldRejected(res.Notes)
-	if weak || near != "" || aboveFail || held != "" {
+	// A lone line the readings place nowhere (lostLineProblem).
+	var lost string
+	var lostFail bool
+	if g.OK && !weak && near == "" && above == "" && pair == nil {
+		lost, lostFail = lostLineProblem(res)
+	}
+	if weak || near != "" || aboveFail || held != "" || lostFail {
 		g.OK = false
 	}
 	switch {
@@ -806,12 +812,16 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute boo
 		g.Problem = near
 	case aboveFail:
 		g.Problem = "the fit failed: " + above
+	case lostFail:
+		g.Problem = "the fit failed: " + lost
 	case !g.OK:
 		g.Problem = "the fit did not converge (" + g.Status + ")"
 	case f.Problem != nil && f.Problem.Sigma == 0 && res.DOF < MinDOF:
 		g.Problem = fewDOF(res.DOF)
 	case above != "":
 		g.Problem = above
+	case lost != "":
+		g.Problem = lost
 	default:
 		g.Problem = ambiguity(res.Criteria)
 	}

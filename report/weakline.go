@@ -254,8 +254,8 @@ func nearSensorProblem(f *Fit, res *inverse.Result, ac bool) string {
 	if math.Abs(s.Current) > k*s.CurrentSigma {
 		return ""
 	}
-	return fmt.Sprintf("no current found: the line lies %.2g m below the lowest sensor, within %.2g m of it (two reading spacings or a hundredth of the readings' extent, whichever is more), where a line fits the noise of a few readings; noise alone does so beside one or other of the %d readings, so its current, %s A, would have to exceed %.3g sigma (3 sigma's chance over as many places) to be found, and does not: no conductor is detected under this group, and its position and depth mean nothing",
-		h, within, len(p.Points), PlusMinus(s.Current, s.CurrentSigma), k)
+	return fmt.Sprintf("no current found: the line lies %.2g m below the lowest sensor, within %.2g m of it (two reading spacings or a hundredth of the readings' extent, whichever is more), where a line fits the noise of a few readings; noise alone does so beside one or other of the %d readings, so its current, %s A, would have to exceed %.3g sigma (3 sigma's chance over as many places) to be found, and does not: no conductor is detected under this group, and its position and depth mean nothing%s",
+		h, within, len(p.Points), PlusMinus(s.Current, s.CurrentSigma), k, alongClause(f))
 }
 
 // aboveGroundProblem returns why the strongest line s of a fit is not a buried

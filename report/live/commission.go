@@ -44,6 +44,20 @@ func (w *assetWorker) loadGeometry(ctx context.Context) error {
 		if err := json.Unmarshal(e.Value(), &g); err != nil {
 			return fmt.Errorf("live: asset %s: stored geometry: %w", a.Name, err)
 		}
+		if diff := nameDiff(g.Conductors, a.Conductors); diff != "" {
+			// The site file's conductors were renamed, added or removed
+			// since the asset was commissioned: the stored geometry would
+			// name and fit the old ones while the API lists the new.
+			w.log.Warn("the stored geometry's conductors differ from the site file's ("+diff+"): it is forgotten and the asset commissioned again from the next windows, as POST /api/v1/assets/"+a.Name+"/recommission does",
+				"stored", conductorNames(g.Conductors), "site", conductorNames(a.Conductors))
+			if err := w.fenced(); err != nil {
+				return err
+			}
+			if err := w.svc.stores.State.Delete(ctx, geometryKey(a.Name)); err != nil {
+				return fmt.Errorf("live: asset %s: forget geometry: %w", a.Name, err)
+			}
+			return nil
+		}
 		conds, unc = g.Conductors, g.Uncertainty
 		if unc == nil {
 			w.log.Warn("the stored geometry carries no uncertainty (an earlier version's, or not found when commissioned): the windows' sigmas leave out its error; recommission the asset to have it")
@@ -136,8 +150,12 @@ func (w *assetWorker) commission(win *window) error {
 		return fmt.Errorf("live: asset %s: store geometry: %w", w.asset.Name, err)
 	}
 	w.log.Info("asset commissioned", "conductors", len(conds), "from", g.From, "to", g.To)
-	for _, c := range conds {
-		w.log.Info("commissioned conductor", "name", c.Name, "kind", c.Kind, "point", c.Point, "direction", c.Direction)
+	for i, c := range publishedGeometry(&g, w.asset.Sensors).Conductors {
+		args := []any{"name", c.Name, "kind", conds[i].Kind, "point", c.PointM, "direction", c.Direction, "depth_m", c.DepthM, "azimuth_deg", c.AzimuthDeg}
+		if c.DepthSigmaM != nil {
+			args = append(args, "depth_sigma_m", *c.DepthSigmaM, "azimuth_sigma_deg", *c.AzimuthSigmaDeg)
+		}
+		w.log.Info("commissioned conductor", args...)
 	}
 	if far := farFromPoints(conds, w.asset.Conductors, farFromPoint); len(far) > 0 {
 		w.log.Warn("commissioned conductors lie far from their points in the site file: check the points, or recommission",
@@ -281,4 +299,186 @@ func sameNames(a, b []ConductorConfig) bool {
 		}
 	}
 	return true
+}
+
+// nameDiff says how the conductor names of stored differ from those of
+// site ("" when they are the same, in any order): those the site file
+// adds and those it no longer has.
+func nameDiff(stored, site []ConductorConfig) string {
+	if sameNames(stored, site) {
+		return ""
+	}
+	has := func(cs []ConductorConfig, name string) bool {
+		for _, c := range cs {
+			if c.Name == name {
+				return true
+			}
+		}
+		return false
+	}
+	var added, gone []string
+	for _, c := range site {
+		if !has(stored, c.Name) {
+			added = append(added, c.Name)
+		}
+	}
+	for _, c := range stored {
+		if !has(site, c.Name) {
+			gone = append(gone, c.Name)
+		}
+	}
+	var parts []string
+	if len(added) > 0 {
+		parts = append(parts, "the site file adds "+strings.Join(added, ", "))
+	}
+	if len(gone) > 0 {
+		parts = append(parts, "the site file no longer has "+strings.Join(gone, ", "))
+	}
+	if len(parts) == 0 {
+		parts = append(parts, fmt.Sprintf("%d conductors stored, %d in the site file", len(stored), len(site)))
+	}
+	return strings.Join(parts, "; ")
+}
+
+// conductorNames returns the names of cs.
+func conductorNames(cs []ConductorConfig) []string {
+	out := make([]string, len(cs))
+	for i, c := range cs {
+		out[i] = c.Name
+	}
+	return out
+}
+
+// CommissionedGeometry is the geometry a commissioned asset holds
+// (AssetInfo.Geometry): where commissioning put each conductor, and how
+// well, for comparison with a survey of the route.
+type CommissionedGeometry struct {
+	// From and To are the sensor times (Unix seconds) of the readings it
+	// was fitted to; Worker the worker that fitted it.
+	From   float64 `json:"from"`
+	To     float64 `json:"to"`
+	Worker string  `json:"worker,omitempty"`
+	// Conductors are the conductors held, in the stored order.
+	Conductors []CommissionedConductor `json:"conductors"`
+}
+
+// CommissionedConductor is one conductor of a CommissionedGeometry. The
+// sigmas are one sigma, propagated (delta method) from the commissioning
+// fit's covariance (geometryUncertainty); absent when none was stored (a
+// geometry of an earlier version, or one whose covariance could not be
+// found).
+type CommissionedConductor struct {
+	Name string `json:"name"`
+	// PointM is where the line passes under the sensors' centroid in plan
+	// (east, north, up, m, the site's frame); Direction its unit direction.
+	PointM      [3]float64  `json:"point_m"`
+	PointSigmaM *[3]float64 `json:"point_sigma_m,omitempty"`
+	Direction   [3]float64  `json:"direction"`
+	// DepthM is the depth of PointM below the sensors' mean height (m).
+	DepthM      float64  `json:"depth_m"`
+	DepthSigmaM *float64 `json:"depth_sigma_m,omitempty"`
+	// AzimuthDeg is the line's bearing in plan, degrees clockwise from
+	// north, 0 to 180.
+	AzimuthDeg      float64  `json:"azimuth_deg"`
+	AzimuthSigmaDeg *float64 `json:"azimuth_sigma_deg,omitempty"`
+}
+
+// conductorPlace returns the published place of a line through p along d
+// (CommissionedConductor): the point under centroid c in plan, its depth
+// below height zs, and the azimuth (degrees, 0 to 180).
+func conductorPlace(p, d, c [3]float64, zs float64) (pt [3]float64, depth, az float64) {
+	d = unit(d)
+	if h := d[0]*d[0] + d[1]*d[1]; h > 1e-12 {
+		t := ((c[0]-p[0])*d[0] + (c[1]-p[1])*d[1]) / h
+		pt = add(p, scale(d, t))
+	} else {
+		pt = p // vertical: no place under the centroid
+	}
+	az = math.Mod(math.Atan2(d[0], d[1])*180/math.Pi+360, 180)
+	return pt, zs - pt[2], az
+}
+
+// publishedGeometry returns g as published for sensors (the asset's), the
+// sigmas from g's covariance where it carries one.
+func publishedGeometry(g *storedGeometry, sensors []SensorConfig) *CommissionedGeometry {
+	var c [3]float64
+	for _, s := range sensors {
+		c = add(c, scale(s.Position, 1/float64(len(sensors))))
+	}
+	zs := c[2]
+	out := &CommissionedGeometry{From: g.From, To: g.To, Worker: g.Worker, Conductors: []CommissionedConductor{}}
+	// place is the published quantities of every conductor of conds: per
+	// conductor point (3), depth, azimuth.
+	place := func(conds []ConductorConfig) []float64 {
+		var v []float64
+		for _, k := range conds {
+			pt, depth, az := conductorPlace(k.Point, k.Direction, c, zs)
+			v = append(v, pt[0], pt[1], pt[2], depth, az)
+		}
+		return v
+	}
+	v0 := place(g.Conductors)
+	for i, k := range g.Conductors {
+		out.Conductors = append(out.Conductors, CommissionedConductor{Name: k.Name,
+			PointM: [3]float64{v0[5*i], v0[5*i+1], v0[5*i+2]}, Direction: unit(k.Direction),
+			DepthM: v0[5*i+3], AzimuthDeg: v0[5*i+4]})
+	}
+	u := g.Uncertainty
+	if u == nil {
+		return out
+	}
+	groups, err := conductorGroups(g.Conductors)
+	if err != nil {
+		return out
+	}
+	base, sign, err := groupGeometry(g.Conductors, groups)
+	if err != nil {
+		return out
+	}
+	np := 0
+	for _, b := range base {
+		np += b.nparam()
+	}
+	if len(u.Covariance) != np {
+		return out
+	}
+	// J, the derivatives of the published quantities with the fit's
+	// parameters (central differences, 1e-6 m and rad, as the covariance
+	// was found), then the variances diag(J C J'); C is already scaled by
+	// the fit's reduced chi-square (geometryUncertainty.Scale).
+	const h = 1e-6
+	jac := make([][]float64, np)
+	x := make([]float64, np)
+	for j := range np {
+		x[j] = h
+		vp := place(shiftGeometry(g.Conductors, groups, base, sign, x))
+		x[j] = -h
+		vm := place(shiftGeometry(g.Conductors, groups, base, sign, x))
+		x[j] = 0
+		jac[j] = make([]float64, len(v0))
+		for q := range v0 {
+			dv := vp[q] - vm[q]
+			if q%5 == 4 { // azimuth: across the wrap at 0/180
+				dv = math.Remainder(dv, 180)
+			}
+			jac[j][q] = dv / (2 * h)
+		}
+	}
+	sig := make([]float64, len(v0))
+	for q := range v0 {
+		var v float64
+		for a := range np {
+			for b := range np {
+				v += jac[a][q] * u.Covariance[a][b] * jac[b][q]
+			}
+		}
+		sig[q] = math.Sqrt(math.Max(v, 0))
+	}
+	for i := range out.Conductors {
+		cc := &out.Conductors[i]
+		ps := [3]float64{sig[5*i], sig[5*i+1], sig[5*i+2]}
+		ds, as := sig[5*i+3], sig[5*i+4]
+		cc.PointSigmaM, cc.DepthSigmaM, cc.AzimuthSigmaDeg = &ps, &ds, &as
+	}
+	return out
 }

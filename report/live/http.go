@@ -222,6 +222,10 @@ type AssetInfo struct {
 	// is stopped until the site file is mended and serve restarted (a
 	// commissioning the readings cannot do without more in the site file).
 	Stopped string `json:"stopped,omitempty"`
+	// Geometry is the geometry a "commission" asset holds, once
+	// commissioned: each conductor's point, direction, depth and azimuth
+	// with their sigmas from the commissioning fit.
+	Geometry *CommissionedGeometry `json:"geometry,omitempty"`
 }
 
 func (s *Service) assetInfo(ctx context.Context, a *AssetConfig) (AssetInfo, error) {
@@ -243,6 +247,19 @@ func (s *Service) assetInfo(ctx context.Context, a *AssetConfig) (AssetInfo, err
 	ai.Restart = req
 	if v, ok := s.stopped.Load(a.Name); ok {
 		ai.Stopped = v.(string)
+	}
+	if a.Model == "commission" {
+		e, err := s.stores.State.Get(ctx, geometryKey(a.Name))
+		switch {
+		case err == nil:
+			var g storedGeometry
+			if err := json.Unmarshal(e.Value(), &g); err != nil {
+				return ai, fmt.Errorf("live: asset %s: stored geometry: %w", a.Name, err)
+			}
+			ai.Geometry = publishedGeometry(&g, a.Sensors)
+		case !errors.Is(err, jetstream.ErrKeyNotFound):
+			return ai, fmt.Errorf("live: asset %s: geometry: %w", a.Name, err)
+		}
 	}
 	return ai, nil
 }

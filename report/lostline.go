@@ -1,0 +1,54 @@
+package report
+
+import (
+	"strings"
+
+	"undercurrent/inverse"
+)
+
+// minDepthNote begins the note (inverse.SourceEstimate.Notes) of a line held at the
+// minimum depth below the sensors.
+const minDepthNote = "held at the minimum depth below the sensors"
+
+// lostLineProblem returns why a group whose only source is a line (no pair) cannot be
+// taken as a conductor found, or "": the line is held at the minimum depth, lies at
+// the edge of the region searched, or passes above the sensors (inverse's notes), so
+// the readings place it nowhere. fail is true when its position is not determined
+// either (the edge of the region, or above the sensors): the group then fails, and
+// its station keeps the readings' centroid. Before, on six fixed sensors over a weak
+// pipe, such a line 1.24 m above the sensors at the edge of the region was counted
+// sound, with no finding.
+func lostLineProblem(res *inverse.Result) (why string, fail bool) {
+	if len(res.Sources) != 1 || len(res.Pairs) > 0 || res.Sources[0].Kind == KindDipole {
+		return "", false
+	}
+	var held, edge, above bool
+	for _, n := range res.Sources[0].Notes {
+		switch {
+		case strings.HasPrefix(n, minDepthNote):
+			held = true
+		case n == inverse.EdgeOfSearchNote:
+			edge = true
+		case n == inverse.AboveSensorsNote:
+			above = true
+		}
+	}
+	var where []string
+	if held {
+		where = append(where, "held at the minimum depth below the sensors")
+	}
+	if edge {
+		where = append(where, "at the edge of the region searched")
+	}
+	if above {
+		where = append(where, "above the sensors")
+	}
+	if len(where) == 0 {
+		return "", false
+	}
+	why = "the only line fitted lies " + strings.Join(where, ", ") + ": the readings do not place it"
+	if edge || above {
+		return why + ", and no conductor is found under this group (one too deep or weak for these readings may lie there)", true
+	}
+	return why + ": its depth means nothing, and its current is that of a line at the depth it was held at", false
+}
