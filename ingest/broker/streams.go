@@ -253,6 +253,15 @@ func defaultDeadLetterBound(ctx context.Context, js jetstream.JetStream, cfg *je
 // name made meanwhile.
 const errCodeStreamNameInUse = 10058
 
+// errCodeNoPeers is the JetStream API error code "no suitable peers for
+// placement": a replicated stream asked of a cluster whose JetStream peers
+// have not all reported yet. On a fresh three-node cluster under load,
+// three Setups started together all got it once (TestSetupTogetherOnFreshCluster),
+// a moment after every node said its JetStream was current; it is tried
+// again until the start-up time ends, when the error is returned (a
+// cluster that truly has too few nodes for the replicas asked).
+const errCodeNoPeers = 10005
+
 // attemptTimeout bounds one lookup of a stream, and firstAttempt one
 // create or update, doubled on each try up to attemptTimeout: a clustered
 // create that gets no answer in that time is looked up and tried again
@@ -292,8 +301,8 @@ func createOrUpdateKeyValue(ctx context.Context, js jetstream.JetStream, cfg jet
 }
 
 // retrying runs op, with firstAttempt doubling up to attemptTimeout,
-// until it succeeds, fails otherwise than by a name in use or a request
-// without an answer, or ctx ends (then the last error is returned, saying
+// until it succeeds, fails otherwise than by a name in use, no peers for
+// placement yet or a request without an answer, or ctx ends (then the last error is returned, saying
 // which it was). It waits between tries, doubling from 100 ms up to 2 s
 // with jitter, so that processes starting together do not ask in step.
 func retrying(ctx context.Context, op func(context.Context) error) error {
@@ -307,14 +316,20 @@ func retrying(ctx context.Context, op func(context.Context) error) error {
 			return nil
 		}
 		var je jetstream.JetStreamError
-		inUse := errors.As(err, &je) && je.APIError() != nil && je.APIError().ErrorCode == errCodeStreamNameInUse
-		if !inUse && !noAnswer(err) {
+		code := 0
+		if errors.As(err, &je) && je.APIError() != nil {
+			code = int(je.APIError().ErrorCode)
+		}
+		if code != errCodeStreamNameInUse && code != errCodeNoPeers && !noAnswer(err) {
 			return err
 		}
 		select {
 		case <-ctx.Done():
 			if noAnswer(err) {
 				return fmt.Errorf("no answer from the broker's JetStream in %d tries (is the cluster's JetStream up, with a leader?): %w", attempt, err)
+			}
+			if code == errCodeNoPeers {
+				return fmt.Errorf("the broker found no servers to place the stream's replicas on in %d tries (does the cluster have as many JetStream servers up as the replicas asked for?): %w", attempt, err)
 			}
 			return err
 		case <-time.After(wait/2 + time.Duration(rand.Int64N(int64(wait)))):
