@@ -4,8 +4,8 @@
 // The input is plain data: one Station per group (a traverse, a sensor or a
 // time window), each holding the fitted point on the conductor, its
 // direction, current and depth with their one-sigma uncertainties (a used
-// station's current sigma must be above zero: Build refuses a zero, which
-// would make no change in current testable; see Station). Build
+// station's zero current sigma is read as exact, one part in a billion of
+// its current, so that a change in current stays testable; see Station). Build
 // orders the stations along the fitted route, measures chainage along it and
 // looks for five things:
 //

@@ -63,9 +63,9 @@ type Route struct {
 // reports steps in current, shallow cover, poor fits and dipole-like
 // anomalies (see the package documentation for the rules). It returns an
 // error, naming the station, when there are no stations or a value is not
-// finite or a sigma is negative, or when a station whose current is used
-// (OK and not Dipole) has a CurrentSigma of zero (see Station); the stations
-// slice is not modified.
+// finite or a sigma is negative. A station whose current is used (OK and
+// not Dipole) with a CurrentSigma of zero is read as exact, to one part in
+// a billion (see Station). The stations slice is not modified.
 func Build(stations []Station, set *Settings) (*Route, error) {
 	if len(stations) == 0 {
 		return nil, errors.New("route: no stations")
@@ -74,15 +74,13 @@ func Build(stations []Station, set *Settings) (*Route, error) {
 		if err := check(&stations[i], i); err != nil {
 			return nil, err
 		}
-		if err := checkSigmas(&stations[i], i); err != nil {
-			return nil, err
-		}
 	}
 	order := chain(stations)
 	bendOrder(stations, order, set)
 	r := &Route{Stations: make([]Placed, len(order))}
 	for k, idx := range order {
 		r.Stations[k] = Placed{Station: stations[idx], Index: idx}
+		r.Stations[k].CurrentSigma = floorSigma(&stations[idx])
 	}
 	measure(r.Stations)
 	gap := repeatGap(r.Stations)

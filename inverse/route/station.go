@@ -17,11 +17,12 @@ type Station struct {
 	// zero Dir is taken from the route.
 	Dir [3]float64
 	// Current and CurrentSigma are the current along Dir and its one-sigma
-	// uncertainty, A. CurrentSigma must be greater than zero on a station
-	// whose current is used (OK and not Dipole): every change in current is
-	// weighed against it, and Build refuses a zero rather than read it as
-	// exact or unknown. For a current not fitted (a site plan, a clamp
-	// meter), give its uncertainty or at least the meter's resolution.
+	// uncertainty, A. Every change in current is weighed against it; a zero
+	// on a station whose current is used (OK and not Dipole) is read as
+	// exact, a sigma of one part in a billion of the current (as a fit of
+	// noise-free readings gives), so that any real change is a step. For a
+	// current not fitted (a site plan, a clamp meter), give its
+	// uncertainty or at least the meter's resolution.
 	Current, CurrentSigma float64
 	// AC is true when Current is the RMS of a phasor whose phase is Phase
 	// (degrees), with PhaseSigma.
