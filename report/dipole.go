@@ -358,6 +358,7 @@ func checkDipoles(fits []Fit, r *route.Route) bool {
 	}
 	wg.Wait()
 	var acc []accepted
+	surface := false
 	for i := range fits {
 		f := &fits[i]
 		ds := found[i]
@@ -373,13 +374,20 @@ func checkDipoles(fits []Fit, r *route.Route) bool {
 				continue
 			}
 		}
+		if aboveGround(f, ds) {
+			// Not a buried item: reported as a disturbance at or above
+			// the ground, the traverse's conductors refitted without its
+			// field and kept on the route (surface.go).
+			surface = keepAboveGround(f, ds) || surface
+			continue
+		}
 		acc = append(acc, accepted{fit: i, ds: ds})
 	}
 	// One object seen from two traverses is reported once (sameobject.go):
 	// the traverse that placed it less well keeps its conductors, refitted
 	// without the object's field.
 	kept := mergeSameObjects(fits, acc)
-	changed := len(kept) < len(acc)
+	changed := len(kept) < len(acc) || surface
 	for _, a := range kept {
 		f, ds := &fits[a.fit], a.ds
 		dropSearch(f)
@@ -653,7 +661,7 @@ func checkTrackDipoles(fits []Fit, r *route.Route, tracks []builtTrack) bool {
 	changed := false
 	for _, j := range jobs {
 		f, ds := &fits[j.fit], j.ds
-		if ds == nil || ds.gain <= dipoleBIC || ds.atTop || !ds.credible(f.Problem) {
+		if ds == nil || ds.gain <= dipoleBIC || ds.atTop || !ds.credible(f.Problem) || aboveGround(f, ds) {
 			continue
 		}
 		// The refitted conductor nearest the track's, in the cross
