@@ -137,6 +137,9 @@ func runDemo(ctx context.Context, out string, stdout, progress io.Writer) error 
 func printFindings(w io.Writer, doc *report.Document) {
 	sound, _ := soundGroups(doc)
 	fmt.Fprintf(w, "located: %d of %d traverses fitted soundly", sound, len(doc.Groups))
+	if obj := objectGroups(doc); obj > 0 {
+		fmt.Fprintf(w, " (%d left out as holding a magnetised object)", obj)
+	}
 	if doc.Route != nil {
 		fmt.Fprintf(w, "; route %.0f m long", doc.Route.Length)
 	}
