@@ -54,6 +54,12 @@ type Fit struct {
 	Start time.Time
 
 	object *route.Object // the magnetised object found by checkDipoles
+	// surface is an object checkDipoles would have accepted but that lies
+	// above the ground (aboveGround, surface.go): reported as a
+	// disturbance, the fit kept (surfaceRefit: its conductors refitted
+	// with the disturbance's field taken out).
+	surface      *route.Object
+	surfaceRefit bool
 	// sameObject is the key of the group that reports the object this
 	// fit's readings also saw (mergeSameObjects, sameobject.go): Result is
 	// then the conductors refitted with that object's field taken out, and
@@ -343,6 +349,7 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 	markLoneMisfits(d.Groups, fits, &bs, rs)
 	d.UncertaintyNote = SigmaNote
 	aloneFindings(fits, r)
+	surfaceFindings(fits, r)
 	sameObjectFindings(fits, r)
 	caveatMisfitSteps(r, modelMisses(fits, &bs, rs, shared != "" || bs.Noise <= 0 && rs.MaxReducedChi2 < 0))
 	if pairRoute {

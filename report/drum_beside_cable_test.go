@@ -27,7 +27,30 @@ func TestDrumBesideCableFound(t *testing.T) {
 	if testing.Short() {
 		t.Skip("fits 18 traverses per seed with the object search")
 	}
-	name := filepath.Join("open", "drum-beside-cable.toml")
+	drumFoundOnSeeds(t, filepath.Join("open", "drum-beside-cable.toml"), []int64{1, 2, 3, 4})
+}
+
+// TestDrumNorthOfCableFound: the same drum on the cable's other side, 1.3 m
+// north (testdata/scenarios/open/drum-north-of-cable.toml, the invented
+// Quillet Hythe). The fit split the cable at the drum's traverse into 14.1
+// and 3.0 A lines 1.9 m apart (chi-square per degree of freedom about 2000);
+// the search from both found the drum but kept a -0.11 A line 0.35 m down
+// beside it, whose geometry the readings do not fix, so the object's moment
+// had no sigma and it was refused on every seed, and the route used the
+// traverse at 14.1 A (found while making drum-beside-cable.toml). The
+// simulated truth is the reference, as above, on seeds 1-3.
+func TestDrumNorthOfCableFound(t *testing.T) {
+	if testing.Short() {
+		t.Skip("fits 18 traverses per seed with the object search")
+	}
+	drumFoundOnSeeds(t, filepath.Join("open", "drum-north-of-cable.toml"), []int64{1, 2, 3})
+}
+
+// drumFoundOnSeeds checks that the scenario's drum is found once, at its
+// traverse, within 4 sigma of the truth, on each seed, with the cable's
+// current there and no further line in the least-cover headline.
+func drumFoundOnSeeds(t *testing.T, name string, seeds []int64) {
+	t.Helper()
 	sc, err := simulate.Load(filepath.Join("..", "testdata", "scenarios", name))
 	if err != nil {
 		t.Fatal(err)
@@ -44,7 +67,7 @@ func TestDrumBesideCableFound(t *testing.T) {
 	}
 	// The drum's traverse: the nearest to it along the route (east).
 	at := ""
-	for _, seed := range []int64{1, 2, 3, 4} {
+	for _, seed := range seeds {
 		d := scenarioDoc(t, name, seed)
 		if at == "" {
 			best := math.Inf(1)

@@ -137,6 +137,9 @@ func runDemo(ctx context.Context, out string, stdout, progress io.Writer) error 
 func printFindings(w io.Writer, doc *report.Document) {
 	sound, _ := soundGroups(doc)
 	fmt.Fprintf(w, "located: %d of %d traverses fitted soundly", sound, len(doc.Groups))
+	if obj := objectGroups(doc); obj > 0 {
+		fmt.Fprintf(w, " (%d left out as holding a magnetised object)", obj)
+	}
 	if doc.Route != nil {
 		fmt.Fprintf(w, "; route %.0f m long", doc.Route.Length)
 	}
@@ -163,9 +166,27 @@ func printFindings(w io.Writer, doc *report.Document) {
 }
 
 // soundGroups counts the groups whose fit is sound: converged, with no
-// problem of its own, and not called poor by a poor-fit caution or warning
-// of the route (a misfit far above the noise); it also counts the readings.
+// problem of its own, not called poor by a poor-fit caution or warning of
+// the route (a misfit far above the noise), and not left out of the
+// current and cover profile as a magnetised object (objectGroups); it also
+// counts the readings.
 func soundGroups(doc *report.Document) (sound, readings int) {
+	sound, _, readings = groupCounts(doc)
+	return sound, readings
+}
+
+// objectGroups counts the groups that would be sound but hold a
+// magnetised object and are left out of the current and cover profile: in
+// review a traverse left out so (a burst at the sensor taken for a buried
+// object) was still counted sound in the summary.
+func objectGroups(doc *report.Document) int {
+	_, objects, _ := groupCounts(doc)
+	return objects
+}
+
+// groupCounts counts the sound groups, the groups otherwise sound left out
+// as magnetised objects, and the readings.
+func groupCounts(doc *report.Document) (sound, objects, readings int) {
 	poor := map[string]bool{}
 	for _, f := range doc.Findings {
 		if f.Kind == string(route.KindPoorFit) && f.Severity != string(route.SeverityInfo) {
@@ -177,10 +198,25 @@ func soundGroups(doc *report.Document) (sound, readings int) {
 	for _, g := range doc.Groups {
 		readings += g.Points
 		if g.OK && g.Problem == "" && !poor[g.Key] {
-			sound++
+			if holdsObject(&g) {
+				objects++
+			} else {
+				sound++
+			}
 		}
 	}
-	return sound, readings
+	return sound, objects, readings
+}
+
+// holdsObject reports whether group g's fit holds a magnetised object
+// (a point dipole source), which leaves it out of the profile.
+func holdsObject(g *report.Group) bool {
+	for _, s := range g.Sources {
+		if s.Kind == report.KindDipole {
+			return true
+		}
+	}
+	return false
 }
 
 // shellQuote quotes s for a POSIX shell when it holds anything but plain

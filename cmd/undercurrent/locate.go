@@ -2110,9 +2110,15 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 	// A group marked only for a base gap fits well: it is counted as
 	// such, not as poor or ambiguous (the base-gap finding says why).
 	gap := baseGapOnlyGroups(doc)
-	counts := fmt.Sprintf("%d sound, %d poor or ambiguous", ok, len(doc.Groups)-ok-gap)
+	// A group left out of the profile as a magnetised object is neither
+	// sound nor poor: counted apart (its dipole-anomaly finding says why).
+	obj := objectGroups(doc)
+	counts := fmt.Sprintf("%d sound, %d poor or ambiguous", ok, len(doc.Groups)-ok-gap-obj)
 	if gap > 0 {
 		counts += fmt.Sprintf(", %d marked for a base gap", gap)
+	}
+	if obj > 0 {
+		counts += fmt.Sprintf(", %d left out as holding a magnetised object", obj)
 	}
 	fmt.Fprintf(w, "fitted %d group(s), %d %s, in %.2f s: %s\n",
 		len(doc.Groups), readings, unit, took.Seconds(), counts)

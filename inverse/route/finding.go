@@ -28,6 +28,11 @@ const (
 	// KindDipole is a station whose field is better explained by a
 	// magnetised object than by a current.
 	KindDipole Kind = "dipole-anomaly"
+	// KindSurfaceDisturbance is a station whose field holds a local
+	// disturbance that a point dipole explains, placed above the ground:
+	// not a buried item but something on the surface or at the sensor.
+	// The station's own fit stays in the profile.
+	KindSurfaceDisturbance Kind = "surface-disturbance"
 	// KindWeakSource is a weak, steep further line source of a station's
 	// fit: more likely the fit absorbing a bend or a change of depth than
 	// a conductor, but shallow if it is one.
