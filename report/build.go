@@ -280,9 +280,10 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 		chooseWeak(fits, ac)
 		stations = make([]route.Station, 0, len(fits))
 		pairRoute = followsPair(fits, ac)
+		placeShort := shortFitsUnplaced(fits)
 		for _, f := range fits {
 			g, st := buildGroup(&f, ac, ref.of(&f), bs.ProfileMax, pairRoute, bs.SensorHeight)
-			if len(fits) > 1 {
+			if placeShort {
 				unplace(&f, &g, &st)
 			}
 			d.Groups = append(d.Groups, g)
@@ -953,8 +954,9 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute boo
 // a failed fit's is, at its readings' centroid, and left out of the
 // profile, its current compared with its neighbours' in its poor-fit
 // finding (route.Station.Unplaced); the group stays a converged, poor fit.
-// Build calls it when there is a route (two groups or more): a lone
-// traverse keeps its cover check. Before, a traverse cut to its first
+// Build calls it when at least three fits, and most, place the conductor
+// (shortFitsUnplaced): a lone traverse keeps its cover check, and short
+// fits that are most of the survey are kept as before. Before, a traverse cut to its first
 // three readings over a 30 A cable, fitted from 1 degree of freedom with a
 // line 4.6 m aside carrying -0.56 A, steered the route through that line
 // (5 m added to every later chainage) and its current entered the profile
@@ -972,6 +974,31 @@ func unplace(f *Fit, g *Group, st *route.Station) {
 		g.Problem += fewDOF(f.Result.DOF)
 		st.Problem = g.Problem
 	}
+}
+
+// shortFitsUnplaced reports whether the fits too short to place the
+// conductor (unplacedFit) are left out of the route's line (unplace): only
+// when at least three fits place it and they outnumber the short ones.
+// Where most or all traverses are short (a log read every 2 m over 8 m
+// traverses, 1-7 degrees of freedom each, every fit within millimetres of
+// the truth; a walk repeated with short traverses; an AC pair with few
+// windows) leaving them all out lost the least cover and set the chainage
+// by the readings' centres, 20% long, or at one end of the route (found in
+// regression review); there they are kept, as before the rule, each with
+// its few-degrees-of-freedom caution.
+func shortFitsUnplaced(fits []Fit) bool {
+	placed, short := 0, 0
+	for i := range fits {
+		f := &fits[i]
+		switch {
+		case f.Result == nil || f.Dipole:
+		case unplacedFit(f):
+			short++
+		default:
+			placed++
+		}
+	}
+	return short > 0 && placed >= 3 && placed > short
 }
 
 // unplacedFit reports whether fit f converged but leaves too few degrees
