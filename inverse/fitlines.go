@@ -543,6 +543,14 @@ type fitter struct {
 	// splitting is set while pairOf evaluates the sigmas of a collapsed pair on a
 	// split copy of its fit (splitSigmas), which must not split again.
 	splitting bool
+	// serialRho and serialWiden, while report summarises a DC fit whose
+	// residuals are correlated along the readings, are their lag-1
+	// autocorrelation and the variance factor the covariance takes for it
+	// (serialFactor); serialWiden is 0 otherwise. Only the final report
+	// widens: the count's choice and its guard judge the intermediate fits,
+	// whose residuals are correlated by the conductors not yet fitted, as
+	// before.
+	serialRho, serialWiden float64
 	// scr lends the work buffers of the separables and the LM engine (its workspace
 	// scr.lm is shared by the fits: one runs at a time).
 	scr *scratch

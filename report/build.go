@@ -303,6 +303,9 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 	if shared != "" {
 		d.Warnings = append([]string{shared}, d.Warnings...)
 	}
+	if w := serialWarning(fits); w != "" {
+		d.Warnings = append(d.Warnings, w)
+	}
 	markLoneMisfits(d.Groups, fits, &bs, rs)
 	d.UncertaintyNote = SigmaNote
 	aloneFindings(fits, r)
