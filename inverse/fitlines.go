@@ -239,6 +239,8 @@ func (f *fitter) run() (*Result, error) {
 	// accepted holds the criterion of each count accepted, for the guard of a
 	// refit (dropLines).
 	accepted := map[int]float64{}
+	// acceptedFit holds the fit of each count accepted (serialCount).
+	acceptedFit := map[int]*candidate{}
 	// unresolved notes a count that stopped short of the noise (UnresolvedLinesNote).
 	var unresolved string
 	// beforeAngles is the fit accepted when a count was passed over for angles the
@@ -353,6 +355,7 @@ func (f *fitter) run() (*Result, error) {
 			break
 		}
 		accepted[k] = crit
+		acceptedFit[k] = c
 		best, bestScore = c, crit
 	}
 	if beforeAngles != nil && best != beforeAngles && !f.atNoise(best.sp, best.rss) {
@@ -361,6 +364,28 @@ func (f *fitter) run() (*Result, error) {
 		// 20 A cable, 86 times the noise in chi-square): the fit before them
 		// stands.
 		best = beforeAngles
+	}
+	// The criterion counts every reading as independent; a fit whose
+	// residuals are correlated along the readings is judged again against
+	// the count before it with the readings it effectively has
+	// (serialCount), and gives way to it while it does not pay for its
+	// further line so.
+	for best != nil && best.keptFrom == nil {
+		kb := len(best.sp.geom)
+		fewer, ok := acceptedFit[kb-1]
+		if kb < 2 || !ok || acceptedFit[kb] != best {
+			break
+		}
+		why := f.serialCount(best, fewer)
+		if why == "" {
+			break
+		}
+		for i := range scores {
+			if scores[i].Count == kb {
+				scores[i].Rejected = why
+			}
+		}
+		best, unresolved = fewer, ""
 	}
 	for i := range scores {
 		if best != nil && scores[i].Count == len(best.sp.geom) {

@@ -876,7 +876,7 @@ func (f *fitter) report(c *candidate, scores []ModelScore) (*Result, error) {
 			return nil, err
 		}
 		n, k := c.counts()
-		rho, widen = f.serialFactor(res, n-k)
+		rho, widen = f.serialFactor(c, res, n-k)
 	}
 	var su *summary
 	var err error

@@ -85,22 +85,90 @@ func lag1(res []float64, stride int) (rho float64, pairs int) {
 // large-sample standard error of the lag-1 autocorrelation of white noise
 // is 1/sqrt(n); Bartlett 1946, from memory), else 1. Under white noise the
 // factor is 1 in about 98 fits of 100. With the noise given
-// (Problem.Sigma) the correlation found in residuals smaller than that
-// noise says little about it (the residuals of a noise-free simulation are
-// rounding, often smooth): the factor's excess over 1 is then taken in the
-// share of the given noise variance the residuals show, at most all of it.
-func (f *fitter) serialFactor(res []float64, dof int) (rho, factor float64) {
+// (Problem.Sigma) the correlation is taken as the noise's only beyond what
+// the residuals' excess over that noise (a misfit: an object beside a
+// cable) could hold, and in the share of that noise's variance the
+// residuals show (the residuals of a noise-free simulation are rounding,
+// often smooth, and say nothing of the noise).
+//
+// A fit that misses the readings by more than serialMaxOverFloor times
+// their noise floor (noiseFloor, from fourth differences) is not widened:
+// its residuals are the model's error (an object fitted by lines, the
+// sharp turn of a bend), which the poor-fit yardstick and the route's
+// strain allowance count, and whose near-total correlation would widen
+// every sigma tenfold and hide the misfit's cause behind it.
+func (f *fitter) serialFactor(c *candidate, res []float64, dof int) (rho, factor float64) {
 	rho, pairs := lag1(res, 3)
 	if pairs < 8 || dof <= 0 || !(rho > 2/math.Sqrt(float64(pairs))) {
 		return rho, 1
 	}
-	factor = AR1Factor(rho)
-	if s := f.prob.Sigma; s > 0 {
-		share := math.Min(1, sumSq(res)/float64(dof)/(s*s))
-		factor = 1 + (factor-1)*share
+	if f.overFloor(c.sp, sumSq(res)) > serialMaxOverFloor {
+		return rho, 1
 	}
-	return rho, factor
+	if s := f.prob.Sigma; s > 0 {
+		// The noise given: of the residuals' lag-1 autocovariance
+		// rho s_r^2, the misfit beyond that noise (s_r^2 - s^2, when
+		// positive) may hold that much, and only the rest is taken as
+		// the noise's: rho_n = (rho s_r^2 - max(0, s_r^2 - s^2)) / s^2.
+		v := sumSq(res) / float64(dof)
+		rho = (rho*v - math.Max(0, v-s*s)) / (s * s)
+		if !(rho > 2/math.Sqrt(float64(pairs))) {
+			return rho, 1
+		}
+	}
+	return rho, AR1Factor(rho)
 }
+
+// serialCount judges the automatic count's fit c against fewer, the fit of
+// the count before it, when c's residuals are correlated along the
+// readings: the criterion's fall from fewer to c counts every reading as
+// independent, and correlated noise lets a further line take up a slow
+// swell of it (a phantom conductor beside the cable, or a second line
+// under it). With n readings, c's variance factor F (serialFactor) counts
+// them as n/F independent ones (the effective sample size; see
+// AR1Factor), so the fall in chi-square is divided by F and the BIC's
+// penalty taken with ln(n/F) (AIC: 2 per parameter, as before). It returns
+// why c is refused when the criterion then does not fall, else "".
+func (f *fitter) serialCount(c, fewer *candidate) string {
+	if c.sp.nrhs != 1 || !(c.rss > 0) || !(fewer.rss > 0) {
+		return ""
+	}
+	res, err := c.sp.fullResiduals(c.x)
+	if err != nil {
+		return ""
+	}
+	n, k := c.counts()
+	_, k0 := fewer.counts()
+	rho, F := f.serialFactor(c, res, n-k)
+	if !(F > 1) {
+		return ""
+	}
+	ne := float64(n) / F
+	var fall float64
+	if s := f.prob.Sigma; s > 0 {
+		fall = (fewer.rss - c.rss) / (s * s)
+	} else {
+		fall = float64(n) * math.Log(fewer.rss/c.rss)
+	}
+	penalty := float64(k-k0) * math.Log(ne)
+	if f.set.Criterion == AIC {
+		penalty = 2 * float64(k-k0)
+	}
+	if fall/F > penalty {
+		return ""
+	}
+	return fmt.Sprintf("%s (lag-1 autocorrelation %.2f): counted as %.0f independent readings of %d, the criterion does not fall", SerialNotePrefix, rho, ne, n)
+}
+
+// serialMaxOverFloor is the most a fit's RMS residual may exceed the
+// readings' noise floor (fourth differences) for the fit to be widened
+// for correlated residuals. Fourth differences of AR(1) noise of lag-1
+// correlation r have 1 + (2/70)(-56 r + 28 r^2 - 8 r^3 + r^4) of its
+// variance (the AR(1) autocorrelation r^k weighed by the difference
+// coefficients 1, -4, 6, -4, 1), so such noise reads 3.0, 4.1 and 5.9
+// times its floor at r = 0.82, 0.9 and 0.95: up to 6 the misfit may be
+// noise so correlated.
+const serialMaxOverFloor = 6.0
 
 // SerialNotePrefix begins the note (Result.Notes) of a DC fit whose sigmas
 // were widened for residuals correlated from reading to reading.

@@ -266,6 +266,13 @@ type Group struct {
 	// given, or the fit's own estimate from its residuals; zero when
 	// unknown.
 	Noise float64 `json:"noise_nt,omitempty"`
+	// ResidualLag1 is the lag-1 autocorrelation of a DC fit's residuals
+	// along the readings (pooled over the axes), and SigmaWidening the
+	// factor by which every sigma of the fit was widened for it
+	// (inverse.Result.SerialCorrelation and SigmaWidening): absent when
+	// not widened, and for AC.
+	ResidualLag1  float64 `json:"residual_lag1,omitempty"`
+	SigmaWidening float64 `json:"sigma_widening,omitempty"`
 	// ReferenceNoise is the group's reference reading noise, nT: the
 	// noise given for the run or, when it was estimated (with three
 	// groups or more), the group's noise measured apart from its fit

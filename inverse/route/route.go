@@ -136,6 +136,7 @@ func check(s *Station, i int) error {
 		{"depth", s.Depth, false}, {"depth sigma", s.DepthSigma, true},
 		{"phase", s.Phase, false}, {"phase sigma", s.PhaseSigma, true},
 		{"noise", s.Noise, true}, {"sigmas per misfit", s.SigmasPerMisfit, true},
+		{"widening", s.Widening, true},
 	}
 	for _, q := range vals {
 		if !finite(q.v) {

@@ -97,7 +97,7 @@ func markStrained(ps []Placed, set *Settings) {
 	u := usable(ps)
 	shift := func(p *Placed) float64 {
 		if r := misfitRatio(p); r > ref && p.SigmasPerMisfit > 0 {
-			return p.CurrentSigma * p.SigmasPerMisfit * math.Sqrt(p.RMS*p.RMS-ref*p.Noise*ref*p.Noise)
+			return unwidened(p) * p.SigmasPerMisfit * math.Sqrt(p.RMS*p.RMS-ref*p.Noise*ref*p.Noise)
 		}
 		return 0
 	}
@@ -115,6 +115,28 @@ func markStrained(ps []Placed, set *Settings) {
 			p.shift = shift(p)
 		}
 	}
+}
+
+// unwidened is the station's current sigma before the fit widened it for
+// residuals correlated along the readings (Station.Widening): the shift's
+// sensitivity |a| = sigma_I / sigma is that of independent readings.
+func unwidened(p *Placed) float64 {
+	if p.Widening > 1 {
+		return p.CurrentSigma / p.Widening
+	}
+	return p.CurrentSigma
+}
+
+// NoiseSigma is the station's current sigma for the reading noise: at a
+// strained station, whose misfit the route takes for the model's error
+// (and counts by its shift), the sigma before the fit widened it for
+// residuals correlated along the readings, a correlation that is the
+// misfit's (Station.Widening); else CurrentSigma.
+func (p *Placed) NoiseSigma() float64 {
+	if p.strained {
+		return unwidened(p)
+	}
+	return p.CurrentSigma
 }
 
 // misfitRatio is the station's RMS residual over its measured noise, 0
