@@ -81,6 +81,7 @@ func Build(stations []Station, set *Settings) (*Route, error) {
 	cornerChainage(r.Stations, set)
 	r.Length = r.Stations[len(r.Stations)-1].Chainage
 
+	unwidenPoor(r.Stations, set)
 	markStrained(r.Stations, set)
 	ends := conductorEnds(r.Stations, set)
 	// Repeats of a station (a route walked again) are one station for
