@@ -242,10 +242,7 @@ func dipoleCandidates(r *route.Route) map[string]bool {
 		// sought): its sigma is taken as before the fit widened it for
 		// residuals correlated along the readings, which that misfit's
 		// own correlation would otherwise hide it behind.
-		s := p.CurrentSigma
-		if p.Widening > 1 {
-			s /= p.Widening
-		}
+		s := p.WhiteSigma()
 		v := s*s + tau2 + (sig[0]*sig[0]+sig[1]*sig[1]+2*tau2)/4
 		if math.Abs(dep) > dipoleAgreeK*math.Sqrt(v) && departs(s, d0, sig[0], tau2) && departs(s, d1, sig[1], tau2) {
 			c[p.Key] = true

@@ -144,7 +144,7 @@ func reference(ps []Placed, idx []int, k int, set *Settings) endRefOf {
 // line 5.0 m deep read ± 1.9 A widened, ± 0.73 A before).
 func deep(p *Placed, r endRefOf) bool {
 	ds := p.DepthSigma
-	if p.Widening > 1 {
+	if p.Widening > 1 && !p.whitened {
 		ds /= p.Widening
 	}
 	return p.Depth > endDepth*r.depth && p.Depth-r.depth > endK*math.Hypot(ds, r.depthSpread)

@@ -9,6 +9,9 @@ import (
 
 // Placed is a station on the route.
 type Placed struct {
+	// whitened is set when unwidenPoor took the station's sigmas back
+	// from the fit's widening (Station.Widening).
+	whitened bool
 	// Station is the caller's station with Dir made a unit vector
 	// pointing along increasing chainage; Current (or Phase for AC) is
 	// adjusted when that flipped Dir.

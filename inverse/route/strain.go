@@ -121,7 +121,7 @@ func markStrained(ps []Placed, set *Settings) {
 // residuals correlated along the readings (Station.Widening): the shift's
 // sensitivity |a| = sigma_I / sigma is that of independent readings.
 func unwidened(p *Placed) float64 {
-	if p.Widening > 1 {
+	if p.Widening > 1 && !p.whitened {
 		return p.CurrentSigma / p.Widening
 	}
 	return p.CurrentSigma
@@ -138,12 +138,14 @@ func unwidened(p *Placed) float64 {
 func unwidenPoor(ps []Placed, set *Settings) {
 	for i := range ps {
 		p := &ps[i]
-		if p.Widening > 1 && !clean(p, set) {
+		if p.Widening > 1 && !clean(p, set) && !p.whitened {
 			w := p.Widening
 			p.CurrentSigma /= w
 			p.DepthSigma /= w
 			p.PhaseSigma /= w
-			p.Widening = 1
+			// Widening is kept (a further conductor's station copies
+			// this one's Station, with its own widened sigmas).
+			p.whitened = true
 		}
 	}
 }
@@ -159,6 +161,11 @@ func (p *Placed) NoiseSigma() float64 {
 	}
 	return p.CurrentSigma
 }
+
+// WhiteSigma is the station's current sigma for independent readings: as
+// before the fit widened it for residuals correlated along the readings
+// (Station.Widening).
+func (p *Placed) WhiteSigma() float64 { return unwidened(p) }
 
 // misfitRatio is the station's RMS residual over its measured noise, 0
 // when either is unknown.
