@@ -242,6 +242,8 @@ func (f *fitter) run() (*Result, error) {
 	// accepted holds the criterion of each count accepted, for the guard of a
 	// refit (dropLines).
 	accepted := map[int]float64{}
+	// acceptedFit holds the fit of each count accepted (serialCount).
+	acceptedFit := map[int]*candidate{}
 	// unresolved notes a count that stopped short of the noise (UnresolvedLinesNote).
 	var unresolved string
 	// beforeAngles is the fit accepted when a count was passed over for angles the
@@ -356,6 +358,7 @@ func (f *fitter) run() (*Result, error) {
 			break
 		}
 		accepted[k] = crit
+		acceptedFit[k] = c
 		best, bestScore = c, crit
 	}
 	if beforeAngles != nil && best != beforeAngles && !f.atNoise(best.sp, best.rss) {
@@ -364,6 +367,28 @@ func (f *fitter) run() (*Result, error) {
 		// 20 A cable, 86 times the noise in chi-square): the fit before them
 		// stands.
 		best = beforeAngles
+	}
+	// The criterion counts every reading as independent; a fit whose
+	// residuals are correlated along the readings is judged again against
+	// the count before it with the readings it effectively has
+	// (serialCount), and gives way to it while it does not pay for its
+	// further line so.
+	for best != nil && best.keptFrom == nil {
+		kb := len(best.sp.geom)
+		fewer, ok := acceptedFit[kb-1]
+		if kb < 2 || !ok || acceptedFit[kb] != best {
+			break
+		}
+		why := f.serialCount(best, fewer)
+		if why == "" {
+			break
+		}
+		for i := range scores {
+			if scores[i].Count == kb {
+				scores[i].Rejected = why
+			}
+		}
+		best, unresolved = fewer, ""
 	}
 	for i := range scores {
 		if best != nil && scores[i].Count == len(best.sp.geom) {
@@ -546,6 +571,14 @@ type fitter struct {
 	// splitting is set while pairOf evaluates the sigmas of a collapsed pair on a
 	// split copy of its fit (splitSigmas), which must not split again.
 	splitting bool
+	// serialRho and serialWiden, while report summarises a DC fit whose
+	// residuals are correlated along the readings, are their lag-1
+	// autocorrelation and the variance factor the covariance takes for it
+	// (serialFactor); serialWiden is 0 otherwise. Only the final report
+	// widens: the count's choice and its guard judge the intermediate fits,
+	// whose residuals are correlated by the conductors not yet fitted, as
+	// before.
+	serialRho, serialWiden float64
 	// scr lends the work buffers of the separables and the LM engine (its workspace
 	// scr.lm is shared by the fits: one runs at a time).
 	scr *scratch

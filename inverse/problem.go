@@ -415,6 +415,12 @@ type Result struct {
 	// the current of the bundle, with its sigma from the covariance; Spacing the
 	// distance between the lines. Nil when there is none.
 	SameWay []PairEstimate
+	// SerialCorrelation is the lag-1 autocorrelation of a DC fit's residuals
+	// along the readings (pooled over the axes), and SigmaWidening the factor
+	// by which every sigma and the square root of the Covariance were widened
+	// for it: sqrt(AR1Factor) when it exceeds twice its standard error under
+	// white noise, else 1 (the note SerialNotePrefix says so). Both 0 for AC.
+	SerialCorrelation, SigmaWidening float64
 	// Notes are cautions about the whole fit.
 	Notes []string
 }

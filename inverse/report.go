@@ -27,6 +27,10 @@ type summary struct {
 	chi2       float64
 	zref       float64
 	refName    string
+	// rho is the lag-1 autocorrelation of a DC fit's residuals along the
+	// readings and widen the variance factor its covariance took for it
+	// (serialWiden; 1 when not widened).
+	rho, widen float64
 	// under holds each line's point under the readings' centroid in plan, its
 	// depth and the depth's sigma (pointAlong), which report gives the Result in
 	// place of the lines' Point, Depth and DepthSigma.
@@ -325,16 +329,23 @@ func (f *fitter) summariseAsIs(c *candidate) (*summary, error) {
 		return nil, fmt.Errorf("inverse: %d readings leave no degrees of freedom to estimate the noise for %d parameters; give Problem.Sigma", n, k)
 	}
 	su.chi2 = c.rss / (su.sigma * su.sigma)
-	cov0.ScaleSym(su.sigma*su.sigma, cov0)
+	// Residuals correlated along the readings: the covariance under
+	// independence is widened (report, serialFactor).
+	su.widen = 1
+	if f.serialWiden > 1 {
+		su.rho, su.widen = f.serialRho, f.serialWiden
+	}
+	cov0.ScaleSym(su.sigma*su.sigma*su.widen, cov0)
 	if f.set.Robust && sp.w != nil && !(f.prob.Sigma > 0) {
 		// Huber's asymptotic covariance in place of the weighted least-squares one,
 		// which holds the weights fixed and takes the scale from the down-weighted
-		// residuals (huberCovariance).
+		// residuals (huberCovariance); widened as above for correlated residuals.
 		hc, err := f.huberCovariance(c, k)
 		if err != nil {
 			return nil, err
 		}
 		if hc != nil {
+			hc.ScaleSym(su.widen, hc)
 			cov0 = hc
 		}
 		if err := sp.evaluate(c.x); err != nil {
@@ -871,10 +882,32 @@ func (f *fitter) report(c *candidate, scores []ModelScore) (*Result, error) {
 	if c == nil {
 		return nil, errors.New("inverse: no acceptable fit")
 	}
-	su, err := f.summariseFinal(c)
+	// Residuals correlated along the readings widen the covariance taken
+	// under independence (serialFactor). DC only: an AC fit's readings are
+	// windows whose noise is measured from their own scatter.
+	var rho, widen float64
+	if c.sp.nrhs == 1 {
+		res, err := c.sp.fullResiduals(c.x)
+		if err != nil {
+			return nil, err
+		}
+		n, k := c.counts()
+		rho, widen = f.serialFactor(c, res, n-k)
+	}
+	var su *summary
+	var err error
+	if widen > 1 {
+		f.serialRho, f.serialWiden = rho, widen
+		su, err = f.summariseOrdered(c)
+		f.serialRho, f.serialWiden = 0, 0
+		c.memo = nil
+	} else {
+		su, err = f.summariseFinal(c)
+	}
 	if err != nil {
 		return nil, err
 	}
+	su.rho = rho
 	sp := c.sp
 	r := &Result{
 		Sources: underCentroid(su), Sigma: su.sigma, Chi2: su.chi2, DOF: su.dof,
@@ -969,6 +1002,12 @@ func (f *fitter) report(c *candidate, scores []ModelScore) (*Result, error) {
 	}
 	if f.set.Robust {
 		r.Notes = append(r.Notes, RobustNote)
+	}
+	if sp.nrhs == 1 {
+		r.SerialCorrelation, r.SigmaWidening = su.rho, math.Sqrt(su.widen)
+		if su.widen > 1 {
+			r.Notes = append(r.Notes, serialNote(su.rho, su.widen))
+		}
 	}
 	return r, nil
 }

@@ -347,6 +347,9 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 	if shared != "" {
 		d.Warnings = append([]string{shared}, d.Warnings...)
 	}
+	if w := serialWarning(fits); w != "" {
+		d.Warnings = append(d.Warnings, w)
+	}
 	markLoneMisfits(d.Groups, fits, &bs, rs)
 	d.UncertaintyNote = SigmaNote
 	aloneFindings(fits, r)
@@ -925,6 +928,9 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute boo
 	st.RMS = res.RMS
 	st.Signal = signalRMS(res)
 	g.Noise = res.Sigma
+	if res.SigmaWidening > 1 {
+		g.ResidualLag1, g.SigmaWidening = res.SerialCorrelation, res.SigmaWidening
+	}
 	if !ac && f.MeasuredNoise > 0 && res.Sigma > 0 {
 		// Each DC fit judged against the noise of its own readings as well
 		// (route strain.go): the square root of the values fitted, three
@@ -934,6 +940,7 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute boo
 		st.Noise = f.MeasuredNoise
 		st.SigmasPerMisfit = math.Sqrt(float64(3*len(pts))) / res.Sigma
 	}
+	st.Widening = res.SigmaWidening
 	if refSigma > 0 && res.Sigma > 0 {
 		// Chi-square against the yardstick noise (yardstick.go), so that a
 		// group fitting much worse than its noise allows stands out.

@@ -74,7 +74,7 @@ import (
 // position and the conductors' geometry (their offsets, azimuths and
 // dips; the strengths solved at each point), in the sandwich form for
 // noise correlated along the traverse as the residuals are (model error
-// is not white noise, see residualAR1 and jointFit.uncertainty). A Monte
+// is not white noise, see inverse.ResidualAR1 and jointFit.uncertainty). A Monte
 // Carlo of the drum fixture (dipole_coverage_test.go) finds them
 // calibrated: the standard deviation of (estimate - truth)/sigma within
 // 0.1 of 1 and about 95% within two sigma, for white and smooth noise.
@@ -238,8 +238,13 @@ func dipoleCandidates(r *route.Route) map[string]bool {
 			continue // between its neighbours: a trend or a step, not an object
 		}
 		dep := math.Abs(p.Current) - (cur[0]+cur[1])/2
-		v := p.CurrentSigma*p.CurrentSigma + tau2 + (sig[0]*sig[0]+sig[1]*sig[1]+2*tau2)/4
-		if math.Abs(dep) > dipoleAgreeK*math.Sqrt(v) && departs(p.CurrentSigma, d0, sig[0], tau2) && departs(p.CurrentSigma, d1, sig[1], tau2) {
+		// A poor fit's misfit is the model's error (here, the object
+		// sought): its sigma is taken as before the fit widened it for
+		// residuals correlated along the readings, which that misfit's
+		// own correlation would otherwise hide it behind.
+		s := p.WhiteSigma()
+		v := s*s + tau2 + (sig[0]*sig[0]+sig[1]*sig[1]+2*tau2)/4
+		if math.Abs(dep) > dipoleAgreeK*math.Sqrt(v) && departs(s, d0, sig[0], tau2) && departs(s, d1, sig[1], tau2) {
 			c[p.Key] = true
 		}
 	}
@@ -1413,11 +1418,11 @@ func searchFrom(f *Fit, from []*inverse.SourceEstimate, at *[3]float64) *dipoleS
 	// Model error left in the readings (a bend of the conductors some
 	// metres away, which the infinite lines miss) is smooth along the
 	// traverse, not white: the sigmas take the residuals' lag-1
-	// autocorrelation (see residualAR1 and jointFit.uncertainty).
+	// autocorrelation (see inverse.ResidualAR1 and jointFit.uncertainty).
 	var sig, momAxisSigma [3]float64
 	var momSigma, curSigma float64
 	if jf := newJointFit(loc, pos); jf != nil {
-		sig, momSigma, momAxisSigma = jf.uncertainty(rss, s2, residualAR1(r), r, len(lines))
+		sig, momSigma, momAxisSigma = jf.uncertainty(rss, s2, inverse.ResidualAR1(r), r, len(lines))
 		curSigma = jf.currentSigma
 	}
 	zref := res.ReferenceZ
@@ -1549,7 +1554,7 @@ func searchAlone(f *Fit, start [3]float64) *dipoleSearch {
 	var sig, momAxisSigma [3]float64
 	var momSigma float64
 	if jf := newJointFit(loc, pos); jf != nil {
-		sig, momSigma, momAxisSigma = jf.uncertainty(rss, s2, residualAR1(r), r, 0)
+		sig, momSigma, momAxisSigma = jf.uncertainty(rss, s2, inverse.ResidualAR1(r), r, 0)
 	}
 	zref := res.ReferenceZ
 	if res.DepthReference != "ReferenceZ" {
@@ -1876,7 +1881,7 @@ func residualSeries(p *inverse.Problem, r *inverse.Result, dst []float64) bool {
 // and of its moment's magnitude, the lines' geometry free, about the
 // model's centre (rss0 the residual sum of squares there, r the strengths
 // fitted there), for noise of variance s2 per reading and axis whose lag-1
-// autocorrelation along the traverse is rho (see residualAR1).
+// autocorrelation along the traverse is rho (see inverse.ResidualAR1).
 //
 // Position: theta is the position and the lines' geometry, the strengths
 // solved at each point (variable projection). Linearised about the
@@ -1892,7 +1897,7 @@ func residualSeries(p *inverse.Problem, r *inverse.Result, dst []float64) bool {
 // infinite lines miss) is smooth along the traverse, not white; the
 // sandwich weighs it by how much each parameter's signature along the
 // traverse has at low frequency, where the scalar factor (1 + rho)/(1 -
-// rho) (ar1Factor) weighs every parameter as if it were a mean, which the
+// rho) (inverse.AR1Factor) weighs every parameter as if it were a mean, which the
 // Monte Carlo of dipole_coverage_test.go found a third too wide at rho 0.8.
 // The first three diagonal entries are the position's marginal variances;
 // zeros when H is not positive definite.
@@ -1907,7 +1912,7 @@ func residualSeries(p *inverse.Problem, r *inverse.Result, dst []float64) bool {
 // var |m| = u^T Sigma_mm u + (d|m|/d theta) C_theta (d|m|/d theta)^T, the
 // moment's axes with their full covariance (for AC the in-phase and
 // quadrature parts each with the same covariance), the conditional part
-// scaled by ar1Factor(rho) (an upper bound; it is the smaller part).
+// scaled by inverse.AR1Factor(rho) (an upper bound; it is the smaller part).
 // Held at the position found, the moment's sigma was three times too
 // small in the Monte Carlo: the depth and the moment trade against each
 // other.
@@ -2005,7 +2010,7 @@ func (j *jointFit) uncertainty(rss0, s2, rho float64, r *inverse.Result, at int)
 	// The meat K^T R K, R K by an AR(1) filter forwards and backwards
 	// along each series: (R k)_i = f_i + b_i - k_i with f_i = k_i + rho
 	// f_(i-1), b_i = k_i + rho b_(i+1).
-	rho = math.Min(math.Max(rho, 0), ar1MaxRho)
+	rho = math.Min(math.Max(rho, 0), inverse.AR1MaxRho)
 	RK := mat.DenseCopyOf(K)
 	if rho > 0 {
 		f, b := make([]float64, n), make([]float64, n)
@@ -2042,7 +2047,7 @@ func (j *jointFit) uncertainty(rss0, s2, rho float64, r *inverse.Result, at int)
 	if !(m0 > 0) || r.Covariance == nil || !(r.Sigma > 0) {
 		return pos, 0, axis
 	}
-	f := s2 * ar1Factor(rho) / (r.Sigma * r.Sigma)
+	f := s2 * inverse.AR1Factor(rho) / (r.Sigma * r.Sigma)
 	if at > 0 {
 		// The first line's current likewise: its conditional variance
 		// (for AC that of each part, the same for both) and the part
@@ -2090,56 +2095,3 @@ func offLine(s *inverse.SourceEstimate, p [3]float64) float64 {
 	}
 	return math.Abs((p[0]-s.Point[0])*d[1]-(p[1]-s.Point[1])*d[0]) / h
 }
-
-// residualAR1 returns the lag-1 autocorrelation of r's residuals in
-// reading order (the order of the traverse), pooled over the axes and, for
-// AC, the in-phase and quadrature parts; 0 when there are too few.
-func residualAR1(r *inverse.Result) float64 {
-	var series [][]float64
-	for a := range 3 {
-		if r.ResidualPhasors != nil {
-			re, im := make([]float64, len(r.ResidualPhasors)), make([]float64, len(r.ResidualPhasors))
-			for i, e := range r.ResidualPhasors {
-				re[i], im[i] = real(e[a]), imag(e[a])
-			}
-			series = append(series, re, im)
-			continue
-		}
-		x := make([]float64, len(r.Residuals))
-		for i, e := range r.Residuals {
-			x[i] = e[a]
-		}
-		series = append(series, x)
-	}
-	var num, den float64
-	for _, x := range series {
-		for i := range x {
-			den += x[i] * x[i]
-			if i > 0 {
-				num += x[i] * x[i-1]
-			}
-		}
-	}
-	if !(den > 0) {
-		return 0
-	}
-	return num / den
-}
-
-// ar1Factor is the factor by which residuals with lag-1 autocorrelation
-// rho inflate the variance of a fitted parameter against white residuals
-// of the same variance, (1 + rho) / (1 - rho) (the effective sample size of
-// an AR(1) series, n (1 - rho) / (1 + rho); from memory, common practice in
-// time-series analysis); 1 for rho <= 0, and at most 100 (rho near 1: the
-// residuals are one slow swell and the factor would say nothing more).
-func ar1Factor(rho float64) float64 {
-	if !(rho > 0) {
-		return 1
-	}
-	return math.Min((1+rho)/(1-rho), 100)
-}
-
-// ar1MaxRho is the largest lag-1 autocorrelation ar1Factor and the
-// sandwich covariance of jointFit.uncertainty take: (1 + rho)/(1 - rho) =
-// 100.
-const ar1MaxRho = 99.0 / 101

@@ -69,7 +69,11 @@ type Document struct {
 // SigmaNote is the Document.UncertaintyNote that Build writes.
 const SigmaNote = "Every fitted sigma (current_sigma_a, depth_sigma_m, phase_sigma_deg, offset, azimuth and dip " +
 	"sigmas) counts the reading noise only (with a base-station correction, the base record's own noise too, " +
-	"which every survey reading taken between two of its readings shares). It does not count the error of the model: bends, a neighbouring " +
+	"which every survey reading taken between two of its readings shares). For DC fits it counts that noise's " +
+	"correlation from reading to reading along the traverse as far as the fit's residuals show it: where their lag-1 " +
+	"autocorrelation is significant every sigma is widened by the square root of (1 + rho)/(1 - rho) (the group's notes " +
+	"say so, the run warns from 1.5 times); noise correlated over many readings (1/f drift, aliased mains) can still " +
+	"leave sigmas too small. It does not count the error of the model: bends, a neighbouring " +
 	"conductor, the finite length of a real conductor against the straight infinite line fitted, errors in the " +
 	"sensor positions. Real errors are often many times larger. The route's station_scatter_current_a and " +
 	"station_scatter_depth_m, the robust scatter between neighbouring stations, are a more realistic measure " +
@@ -262,6 +266,13 @@ type Group struct {
 	// given, or the fit's own estimate from its residuals; zero when
 	// unknown.
 	Noise float64 `json:"noise_nt,omitempty"`
+	// ResidualLag1 is the lag-1 autocorrelation of a DC fit's residuals
+	// along the readings (pooled over the axes), and SigmaWidening the
+	// factor by which every sigma of the fit was widened for it
+	// (inverse.Result.SerialCorrelation and SigmaWidening): absent when
+	// not widened, and for AC.
+	ResidualLag1  float64 `json:"residual_lag1,omitempty"`
+	SigmaWidening float64 `json:"sigma_widening,omitempty"`
 	// ReferenceNoise is the group's reference reading noise, nT: the
 	// noise given for the run or, when it was estimated (with three
 	// groups or more), the group's noise measured apart from its fit

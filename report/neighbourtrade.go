@@ -88,13 +88,18 @@ func caveatNeighbourTrades(r *route.Route, tracks []builtTrack) {
 					s = -1
 				}
 				dy := s * (yb.Current - ya.Current)
-				sy := math.Hypot(ya.CurrentSigma, yb.CurrentSigma)
+				// Each with its sigma for independent readings (route
+				// Placed.WhiteSigma): the trade is the model's error at
+				// these stations, whose smooth misfit widens their fits'
+				// sigmas (a real 3 A loss beside the line had lost this
+				// clause so).
+				sy := math.Hypot(ya.WhiteSigma(), yb.WhiteSigma())
 				if !(dx*dy < 0) || !(math.Abs(dy) > 3*sy) || math.Abs(dy) < tradeLo*math.Abs(dx) || math.Abs(dy) > tradeHi*math.Abs(dx) {
 					continue
 				}
 				sep := 0.5 * (tradePlan(xa, ya) + tradePlan(xb, yb))
 				words = append(words, fmt.Sprintf("conductor %d, %.2g m beside it, changes the other way by %s A between the same stations (%s A at %s, %s A at %s)",
-					o.number, sep, pm(math.Abs(dy), sy), pm(ya.Current, ya.CurrentSigma), a, pm(yb.Current, yb.CurrentSigma), b))
+					o.number, sep, pm(math.Abs(dy), sy), pm(ya.Current, ya.WhiteSigma()), a, pm(yb.Current, yb.WhiteSigma()), b))
 			}
 			if len(words) == 0 {
 				continue

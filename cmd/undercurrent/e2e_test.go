@@ -66,6 +66,7 @@ type resultDoc struct {
 		OK         bool        `json:"ok"`
 		Sources    []docSource `json:"sources"`
 		Notes      []string    `json:"notes"`
+		Widening   float64     `json:"sigma_widening"`
 		RampHz     *float64    `json:"phase_ramp_hz"`
 		RampSigma  *float64    `json:"phase_ramp_sigma_hz"`
 		Criteria   []struct {

@@ -13,6 +13,8 @@ import (
 	"strconv"
 	"strings"
 	"testing"
+
+	"undercurrent/inverse"
 )
 
 // openLocate simulates testdata/scenarios/open/NAME with seed (or the
@@ -59,7 +61,11 @@ func stepFindings(doc *resultDoc) []docFinding {
 // the bend are biased by the turned arm, and before the steps straddling
 // the bend were withheld it reported "current rises" then "current falls"
 // (0.8 A, 4%) at the stations the bend finding names, on every seed. The
-// bend's poor-fit finding says what was withheld.
+// bend's poor-fit finding says what was withheld, or, where the fits at
+// the bend widened their sigmas for residuals correlated along the
+// traverse (the straight line's misfit to the turned arm is smooth), so
+// that no change within the bend stands out to be withheld, the notes of
+// the bend's fits so widened and the run's warning say so.
 func TestOpenBendNoStep(t *testing.T) {
 	for seed := 1; seed <= 6; seed++ {
 		doc := openLocate(t, "bend.toml", seed, "")
@@ -72,8 +78,25 @@ func TestOpenBendNoStep(t *testing.T) {
 				noted = true
 			}
 		}
-		if !noted {
-			t.Errorf("seed %d: no poor-fit finding notes the change withheld at the bend", seed)
+		warned, widened := false, false
+		for _, w := range doc.Warnings {
+			warned = warned || strings.Contains(w, "residuals correlated from reading to reading")
+		}
+		for _, f := range doc.Findings {
+			if f.Kind != "poor-fit" || !strings.Contains(f.Message, "which one straight line cannot follow") {
+				continue
+			}
+			for _, g := range doc.Groups {
+				if !strings.Contains(f.Message, "fit at "+g.Key+" ") {
+					continue
+				}
+				for _, n := range g.Notes {
+					widened = widened || warned && strings.HasPrefix(n, inverse.SerialNotePrefix)
+				}
+			}
+		}
+		if !noted && !widened {
+			t.Errorf("seed %d: no poor-fit finding notes the change withheld at the bend, nor do the bend's fits say their sigmas were widened", seed)
 		}
 	}
 }

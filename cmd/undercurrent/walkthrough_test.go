@@ -124,9 +124,14 @@ func scoreRun(doc *resultDoc, truth map[string]truthRow, skip map[string]bool) w
 			continue
 		}
 		s := g.Sources[0]
+		// In the sigmas of the reading noise alone: a fit whose residuals
+		// are correlated along the traverse (the uncalibrated run's smooth
+		// misfit) widens its sigmas (sigma_widening), and the score is of
+		// the bias against the noise.
+		w := math.Max(1, g.Widening)
 		align := math.Copysign(1, s.Direction[0]*tr.dir[0]+s.Direction[1]*tr.dir[1]+s.Direction[2]*tr.dir[2])
-		zc += (s.Current - align*tr.current) / s.CurrentSigma
-		dz := (s.Depth - (tr.depth + doc.DepthReference.Z)) / s.DepthSigma
+		zc += (s.Current - align*tr.current) / (s.CurrentSigma / w)
+		dz := (s.Depth - (tr.depth + doc.DepthReference.Z)) / (s.DepthSigma / w)
 		zd += dz * dz
 		n++
 	}

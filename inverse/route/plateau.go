@@ -358,7 +358,7 @@ func determined(pts []lvPoint, f lvFit) bool {
 // is shared by its neighbours and does not average away over a plateau:
 // it is added to the level's sigma instead, see stepFindings.)
 func misfitSigma(p *Placed, set *Settings) float64 {
-	s := p.CurrentSigma
+	s := p.NoiseSigma()
 	if !clean(p, set) && p.DOF > 0 && p.Chi2 > 0 {
 		s *= math.Sqrt(math.Max(1, p.Chi2/float64(p.DOF)))
 	}

@@ -9,6 +9,9 @@ import (
 
 // Placed is a station on the route.
 type Placed struct {
+	// whitened is set when unwidenPoor took the station's sigmas back
+	// from the fit's widening (Station.Widening).
+	whitened bool
 	// Station is the caller's station with Dir made a unit vector
 	// pointing along increasing chainage; Current (or Phase for AC) is
 	// adjusted when that flipped Dir.
@@ -88,6 +91,7 @@ func Build(stations []Station, set *Settings) (*Route, error) {
 	cornerChainage(r.Stations, set)
 	r.Length = r.Stations[len(r.Stations)-1].Chainage
 
+	unwidenPoor(r.Stations, set)
 	markStrained(r.Stations, set)
 	ends := conductorEnds(r.Stations, set)
 	// Repeats of a station (a route walked again) are one station for
@@ -146,6 +150,7 @@ func check(s *Station, i int) error {
 		{"depth", s.Depth, false}, {"depth sigma", s.DepthSigma, true},
 		{"phase", s.Phase, false}, {"phase sigma", s.PhaseSigma, true},
 		{"noise", s.Noise, true}, {"sigmas per misfit", s.SigmasPerMisfit, true},
+		{"widening", s.Widening, true},
 	}
 	for _, q := range vals {
 		if !finite(q.v) {

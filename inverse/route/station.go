@@ -57,6 +57,13 @@ type Station struct {
 	// (Cauchy-Schwarz, see strain.go), per nT; zero when unknown. It is
 	// the group's, whichever of its lines the station follows.
 	SigmasPerMisfit float64
+	// Widening is the factor by which the fit widened its sigmas for
+	// residuals correlated along the readings (inverse.Result.SigmaWidening;
+	// 0 or 1 when it did not). A strained station's misfit is the model's
+	// error, which its shift counts (strain.go): its current's sigma is
+	// then taken unwidened beside the shift (misfitSigma), not counted
+	// twice. SigmasPerMisfit is per the unwidened sigma.
+	Widening float64
 	// Chi2 and DOF are the fit's chi-square and degrees of freedom; when
 	// DOF > 0 and Settings.MaxReducedChi2 > 0 a large Chi2/DOF is reported
 	// as a poor fit. Leave them zero when the noise was estimated from the

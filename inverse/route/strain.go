@@ -97,7 +97,7 @@ func markStrained(ps []Placed, set *Settings) {
 	u := usable(ps)
 	shift := func(p *Placed) float64 {
 		if r := misfitRatio(p); r > ref && p.SigmasPerMisfit > 0 {
-			return p.CurrentSigma * p.SigmasPerMisfit * math.Sqrt(p.RMS*p.RMS-ref*p.Noise*ref*p.Noise)
+			return unwidened(p) * p.SigmasPerMisfit * math.Sqrt(p.RMS*p.RMS-ref*p.Noise*ref*p.Noise)
 		}
 		return 0
 	}
@@ -116,6 +116,56 @@ func markStrained(ps []Placed, set *Settings) {
 		}
 	}
 }
+
+// unwidened is the station's current sigma before the fit widened it for
+// residuals correlated along the readings (Station.Widening): the shift's
+// sensitivity |a| = sigma_I / sigma is that of independent readings.
+func unwidened(p *Placed) float64 {
+	if p.Widening > 1 && !p.whitened {
+		return p.CurrentSigma / p.Widening
+	}
+	return p.CurrentSigma
+}
+
+// unwidenPoor takes the sigmas of each poor fit (not clean: a problem, or
+// a reduced chi-square over the limit) as they were before the fit widened
+// them for residuals correlated along the readings (Station.Widening): a
+// poor fit's misfit is the model's, which the poor-fit findings name and
+// the route counts (misfitSigma, strain.go), and its correlation would be
+// counted twice. Past a cable's end the field of the end, fitted as a line
+// 4.9 m deep with 74% of the current, had its shortfall of current hidden
+// by a 2.7 times wider sigma, and the end went unreported.
+func unwidenPoor(ps []Placed, set *Settings) {
+	for i := range ps {
+		p := &ps[i]
+		if p.Widening > 1 && !clean(p, set) && !p.whitened {
+			w := p.Widening
+			p.CurrentSigma /= w
+			p.DepthSigma /= w
+			p.PhaseSigma /= w
+			// Widening is kept (a further conductor's station copies
+			// this one's Station, with its own widened sigmas).
+			p.whitened = true
+		}
+	}
+}
+
+// NoiseSigma is the station's current sigma for the reading noise: at a
+// strained station, whose misfit the route takes for the model's error
+// (and counts by its shift), the sigma before the fit widened it for
+// residuals correlated along the readings, a correlation that is the
+// misfit's (Station.Widening); else CurrentSigma.
+func (p *Placed) NoiseSigma() float64 {
+	if p.strained {
+		return unwidened(p)
+	}
+	return p.CurrentSigma
+}
+
+// WhiteSigma is the station's current sigma for independent readings: as
+// before the fit widened it for residuals correlated along the readings
+// (Station.Widening).
+func (p *Placed) WhiteSigma() float64 { return unwidened(p) }
 
 // misfitRatio is the station's RMS residual over its measured noise, 0
 // when either is unknown.

@@ -1,11 +1,9 @@
-package report
+package inverse
 
 import (
 	"math"
 	"math/rand/v2"
 	"testing"
-
-	"undercurrent/inverse"
 )
 
 // TestResidualAR1 checks the lag-1 autocorrelation against series of known
@@ -15,7 +13,7 @@ import (
 func TestResidualAR1(t *testing.T) {
 	for _, rho := range []float64{0, 0.5, 0.9} {
 		rng := rand.New(rand.NewPCG(7, uint64(rho*10)))
-		r := &inverse.Result{Residuals: make([][3]float64, 2000)}
+		r := &Result{Residuals: make([][3]float64, 2000)}
 		var prev [3]float64
 		for i := range r.Residuals {
 			for a := range 3 {
@@ -23,7 +21,7 @@ func TestResidualAR1(t *testing.T) {
 			}
 			r.Residuals[i] = prev
 		}
-		if got := residualAR1(r); math.Abs(got-rho) > 4*math.Sqrt((1-rho*rho)/6000)+0.005 {
+		if got := ResidualAR1(r); math.Abs(got-rho) > 4*math.Sqrt((1-rho*rho)/6000)+0.005 {
 			t.Errorf("rho %.1f: estimated %.4f", rho, got)
 		}
 	}
@@ -34,8 +32,8 @@ func TestResidualAR1(t *testing.T) {
 // of 400 values with rho = 0.8 over 2,000 series, against the white
 // variance 1/(400 (1 - rho^2)) of each value's spread, within 10%.
 func TestAR1Factor(t *testing.T) {
-	if ar1Factor(-0.3) != 1 || ar1Factor(0) != 1 || ar1Factor(0.999) != 100 {
-		t.Errorf("ar1Factor bounds: %g %g %g", ar1Factor(-0.3), ar1Factor(0), ar1Factor(0.999))
+	if AR1Factor(-0.3) != 1 || AR1Factor(0) != 1 || AR1Factor(0.999) != 100 {
+		t.Errorf("AR1Factor bounds: %g %g %g", AR1Factor(-0.3), AR1Factor(0), AR1Factor(0.999))
 	}
 	const rho, n, runs = 0.8, 400, 2000
 	rng := rand.New(rand.NewPCG(11, 3))
@@ -50,7 +48,7 @@ func TestAR1Factor(t *testing.T) {
 		v += m * m / runs
 	}
 	white := 1 / (n * (1 - rho*rho))
-	if got, want := v/white, ar1Factor(rho); math.Abs(got-want) > 0.1*want {
+	if got, want := v/white, AR1Factor(rho); math.Abs(got-want) > 0.1*want {
 		t.Errorf("variance of the mean %.3g times the white one, want %.3g", got, want)
 	}
 }
