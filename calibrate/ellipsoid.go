@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"math/cmplx"
 	"sort"
 	"strings"
 
@@ -490,9 +491,29 @@ func algebraicFit(readings [][3]float64, reference float64) (ellipsoidFit, error
 	vals := eig.Values(nil)
 	var vecs mat.CDense
 	eig.VectorsTo(&vecs)
+	// The eigenvalue of an eigenvector v is vᵀ red v / vᵀ C1 v, red being positive
+	// semi-definite: the ellipsoid's (vᵀ C1 v > 0, the constraint) is the one not
+	// below zero. On readings that lie on an ellipsoid exactly it is zero, and
+	// round-off gives it either sign: an eigenvalue within round-off of zero
+	// (relative to the spectrum) is taken too when its vector meets the
+	// constraint, as the null vector of red it is.
+	var scale float64
+	for _, v := range vals {
+		scale = math.Max(scale, cmplx.Abs(v))
+	}
+	tol := 1e-9 * scale
 	best := -1
+	v1 := mat.NewVecDense(6, nil)
+	cv := mat.NewVecDense(6, nil)
 	for i, v := range vals {
-		if math.Abs(imag(v)) > 1e-9*math.Abs(real(v)) || real(v) <= 0 {
+		if math.Abs(imag(v)) > 1e-9*math.Max(math.Abs(real(v)), tol) || real(v) < -tol {
+			continue
+		}
+		for k := 0; k < 6; k++ {
+			v1.SetVec(k, real(vecs.At(k, i)))
+		}
+		cv.MulVec(c1, v1)
+		if !(mat.Dot(v1, cv) > 0) {
 			continue
 		}
 		if best < 0 || real(v) > real(vals[best]) {
@@ -500,9 +521,8 @@ func algebraicFit(readings [][3]float64, reference float64) (ellipsoidFit, error
 		}
 	}
 	if best < 0 {
-		return fit, errors.New("calibrate: ellipsoid: no ellipsoid fits the readings (no positive eigenvalue)")
+		return fit, errors.New("calibrate: ellipsoid: no ellipsoid fits the readings (no eigenvector meets the ellipsoid constraint)")
 	}
-	v1 := mat.NewVecDense(6, nil)
 	for i := 0; i < 6; i++ {
 		v1.SetVec(i, real(vecs.At(i, best)))
 	}

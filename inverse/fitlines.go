@@ -407,7 +407,9 @@ func (f *fitter) run() (*Result, error) {
 // asked for (Settings.Count) that the readings do not support: a line whose current
 // is not resolved, lines that coincide, a line at a bound of the search or deeper than
 // the survey resolves (the automatic count's guard). The lines are all reported, with
-// their own notes; the unsupported ones mark no conductor.
+// their own notes; the unsupported ones mark no conductor. A fit of asked dipoles
+// (Settings.Dipoles) some of whose moments are not significant gets a note beginning
+// with it too, naming them (DipoleMomentNotSignificantNote).
 const UnsupportedCountNote = "more lines than the readings support"
 
 // forcedCount returns the fit of the number of lines asked for (Settings.Count) from

@@ -179,7 +179,10 @@ type Settings struct {
 	// Dipoles is the number of point dipoles (ferrous objects: a valve, a buried drum)
 	// fitted together with the lines, so that their fields are not mistaken for
 	// currents; 0 fits none. Each is seeded under the peak of the residual of the
-	// fit without it.
+	// fit without it. A dipole whose moment the readings do not set apart from zero
+	// (DipoleMomentNotSignificantNote) has no identifiable position and the Result's
+	// notes carry UnsupportedCountNote; one above ReferenceZ is noted
+	// (DipoleAboveReferenceNote).
 	Dipoles int
 	// MinDepth keeps each conductor at least this far (m) below the lowest sensor; 0
 	// means 0.02 m.

@@ -11,6 +11,7 @@ import (
 	"strings"
 
 	"gonum.org/v1/gonum/mat"
+	"gonum.org/v1/gonum/stat/distuv"
 )
 
 // summary is the uncertainty analysis of a candidate fit.
@@ -579,12 +580,71 @@ func (f *fitter) summariseAsIs(c *candidate) (*summary, error) {
 		e.Notes = append(e.Notes, "point dipole: a magnetised (ferrous) object, not a current")
 		if pu {
 			e.Notes = append(e.Notes, "position not resolved by the data")
+		}
+		// As for a line with no current: a dipole whose moment the readings do not
+		// set apart from zero has no position they determine (a spare dipole asked
+		// for sits under a single reading, "located" to a centimetre).
+		if !pu && !momentSignificant(su.cov, su.v, np+c0, q, nr) {
+			e.Notes = append(e.Notes, DipoleMomentNotSignificantNote)
+			pu = true
+		}
+		if pu {
+			e.Identifiable.Depth, e.Identifiable.Offset = false, false
 			e.DepthSigma, e.OffsetSigma, e.PointSigma = 0, 0, [3]float64{}
+		}
+		if f.set.ReferenceZ != nil && e.Depth < 0 {
+			e.Notes = append(e.Notes, DipoleAboveReferenceNote)
 		}
 		su.lines = append(su.lines, e)
 		off += 3
 	}
 	return su, nil
+}
+
+// DipoleMomentNotSignificantNote begins the note (SourceEstimate.Notes) of a dipole
+// whose moment is not significantly different from zero (momentSignificant): its
+// position is not determined by the readings (Identifiable.Depth and Offset false,
+// no position sigmas), and it marks no object. FitLines then adds to Result.Notes a
+// note beginning with UnsupportedCountNote.
+const DipoleMomentNotSignificantNote = "moment not significantly different from zero: the position is not determined by the data"
+
+// DipoleAboveReferenceNote is the note (SourceEstimate.Notes) of a dipole above the
+// height given as Settings.ReferenceZ (a negative depth): not a buried object.
+const DipoleAboveReferenceNote = "above Settings.ReferenceZ (negative depth): not a buried object"
+
+// momentSignificant reports whether a dipole's moment, whose components (DC), or
+// real then imaginary parts (AC, q columns apart), begin at column j0 of the
+// parameter vector v with covariance cov, differs from zero: its chi-square,
+// m' C^-1 m over its 3 (DC) or 6 (AC) components, beyond the point of the
+// chi-square distribution with as many degrees of freedom at the level of a line's
+// two-sigma current rule (95.45%). A covariance block that cannot be inverted
+// (components the readings do not resolve) is taken as not significant.
+func momentSignificant(cov mat.Symmetric, v []float64, j0, q, nr int) bool {
+	idx := make([]int, 0, 6)
+	for kk := range nr {
+		for k := range 3 {
+			idx = append(idx, j0+kk*q+k)
+		}
+	}
+	n := len(idx)
+	c := mat.NewSymDense(n, nil)
+	m := mat.NewVecDense(n, nil)
+	for a, ia := range idx {
+		m.SetVec(a, v[ia])
+		for b := a; b < n; b++ {
+			c.SetSym(a, b, cov.At(ia, idx[b]))
+		}
+	}
+	var ch mat.Cholesky
+	if !ch.Factorize(c) {
+		return false
+	}
+	var x mat.VecDense
+	if err := ch.SolveVecTo(&x, m); err != nil {
+		return false
+	}
+	chi2 := mat.Dot(m, &x)
+	return chi2 > distuv.ChiSquared{K: float64(n)}.Quantile(math.Erf(2/math.Sqrt2))
 }
 
 // deg1 formats v as fmt's %.1f does (the notes' held angles), without fmt's cost.
@@ -1009,7 +1069,37 @@ func (f *fitter) report(c *candidate, scores []ModelScore) (*Result, error) {
 			r.Notes = append(r.Notes, serialNote(su.rho, su.widen))
 		}
 	}
+	if n := unsupportedDipolesNote(r.Sources, f.set.Dipoles); n != "" {
+		r.Notes = append(r.Notes, n)
+	}
 	return r, nil
+}
+
+// unsupportedDipolesNote returns the note (Result.Notes, beginning with
+// UnsupportedCountNote) of a fit of asked dipoles (Settings.Dipoles) some of whose
+// moments the readings do not set apart from zero, naming them, or "".
+func unsupportedDipolesNote(sources []SourceEstimate, asked int) string {
+	var which []string
+	d := 0
+	for i := range sources {
+		e := &sources[i]
+		if e.Kind != "dipole" {
+			continue
+		}
+		d++
+		if slices.Contains(e.Notes, DipoleMomentNotSignificantNote) {
+			which = append(which, "dipole "+strconv.Itoa(d))
+		}
+	}
+	if len(which) == 0 {
+		return ""
+	}
+	verb := "is"
+	if len(which) > 1 {
+		verb = "are"
+	}
+	return fmt.Sprintf("%s: %d %s asked for, but the readings do not support them all (the moment of %s %s not significantly different from zero)",
+		UnsupportedCountNote, asked, map[bool]string{true: "dipole was", false: "dipoles were"}[asked == 1], strings.Join(which, " and "), verb)
 }
 
 // UnresolvedKeptNote begins the note (SourceEstimate.Notes) of a line the automatic
