@@ -105,26 +105,14 @@ func combineRepeats(ps []Placed, gap float64) []Placed {
 	}
 	var out []Placed
 	merged := false
-	for i := 0; i < len(ps); {
-		j := i + 1
-		for j < len(ps) && ps[j].Chainage-ps[i].Chainage < gap {
-			j++
-		}
-		var use []*Placed
-		for k := i; k < j; k++ {
-			if ps[k].usable() {
-				use = append(use, &ps[k])
-			}
-		}
+	repeatRuns(ps, gap, func(i, j int, use []*Placed) {
 		if len(use) < 2 {
 			out = append(out, ps[i:j]...)
-			i = j
-			continue
+			return
 		}
 		merged = true
 		out = append(out, combine(use))
-		i = j
-	}
+	})
 	if !merged {
 		return ps
 	}
@@ -212,4 +200,25 @@ func alsoText(also []string) string {
 		return ""
 	}
 	return " with " + strings.Join(also, ", ")
+}
+
+// repeatRuns calls visit for each run of successive stations of ps (route
+// order) less than gap apart along the route from the run's first, ps[i:j],
+// with its usable stations: the repeats of one station when there are two
+// or more (combineRepeats, repeatSets).
+func repeatRuns(ps []Placed, gap float64, visit func(i, j int, use []*Placed)) {
+	for i := 0; i < len(ps); {
+		j := i + 1
+		for j < len(ps) && ps[j].Chainage-ps[i].Chainage < gap {
+			j++
+		}
+		var use []*Placed
+		for k := i; k < j; k++ {
+			if ps[k].usable() {
+				use = append(use, &ps[k])
+			}
+		}
+		visit(i, j, use)
+		i = j
+	}
 }

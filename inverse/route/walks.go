@@ -76,22 +76,11 @@ func repeatSets(ps []Placed, gap float64) [][]*Placed {
 		return nil
 	}
 	var sets [][]*Placed
-	for i := 0; i < len(ps); {
-		j := i + 1
-		for j < len(ps) && ps[j].Chainage-ps[i].Chainage < gap {
-			j++
-		}
-		var use []*Placed
-		for k := i; k < j; k++ {
-			if ps[k].usable() {
-				use = append(use, &ps[k])
-			}
-		}
+	repeatRuns(ps, gap, func(_, _ int, use []*Placed) {
 		if len(use) >= 2 {
 			sets = append(sets, use)
 		}
-		i = j
-	}
+	})
 	return sets
 }
 
