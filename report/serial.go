@@ -58,6 +58,6 @@ func serialWarning(fits []Fit) string {
 	if n == 1 {
 		lead = "the group's fit"
 	}
-	return fmt.Sprintf("%s leave residuals correlated from reading to reading along the traverse, so the readings carry less than their number suggests: their sigmas were widened %s times for it (see each group's notes). Likely causes: slow drift of the sensor, tilt wander of a hand-held sensor, passing traffic, mains hum aliased into a slow DC log, or a field the fitted lines do not fully describe; steady the sensor, log faster or away from traffic, and repeat a traverse to check",
+	return fmt.Sprintf("%s leave residuals correlated from reading to reading along the traverse, so the readings carry less than their number suggests: their sigmas were widened %s times for it (see each group's notes). Either the fitted lines do not fully describe the field there (a bend or change of depth, an object, a tee or crossing service, a conductor's end, a sensor not calibrated: see the other findings on these groups), or the noise itself is correlated (slow drift of the sensor, tilt wander of a hand-held sensor, passing traffic, mains hum aliased into a slow DC log); where no such feature explains it, steady the sensor, log faster or away from traffic, and repeat a traverse to check",
 		lead, by)
 }
