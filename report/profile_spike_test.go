@@ -58,19 +58,7 @@ func TestPoorFitProfileKeepsSpikes(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	byKey := map[string]*inverse.Problem{}
-	var keys []string
-	for i := range s.Time {
-		k := s.Group[i]
-		if byKey[k] == nil {
-			byKey[k] = &inverse.Problem{}
-			keys = append(keys, k)
-		}
-		p := byKey[k]
-		p.Points = append(p.Points, [3]float64{s.X[i], s.Y[i], s.Z[i]})
-		p.Fields = append(p.Fields, [3]float64{s.Bx[i], s.By[i], s.Bz[i]})
-	}
-	sort.Strings(keys)
+	byKey, keys := groupProblems(s)
 	spiked := keys[1]
 	p := byKey[spiked]
 	if len(p.Points) < 1500 {

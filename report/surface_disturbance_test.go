@@ -3,7 +3,6 @@ package report
 import (
 	"math"
 	"path/filepath"
-	"sort"
 	"strings"
 	"testing"
 
@@ -39,20 +38,7 @@ func TestBurstAboveGroundNotBuried(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	byKey := map[string]*inverse.Problem{}
-	var keys []string
-	for i := range s.Time {
-		k := s.Group[i]
-		p := byKey[k]
-		if p == nil {
-			p = &inverse.Problem{}
-			byKey[k] = p
-			keys = append(keys, k)
-		}
-		p.Points = append(p.Points, [3]float64{s.X[i], s.Y[i], s.Z[i]})
-		p.Fields = append(p.Fields, [3]float64{s.Bx[i], s.By[i], s.Bz[i]})
-	}
-	sort.Strings(keys)
+	byKey, keys := groupProblems(s)
 	// The bursts, nT east, north, up (the review's, less its noise).
 	b := byKey["T01"].Fields
 	for _, i := range []int{59, 60} {

@@ -7,6 +7,7 @@ import (
 	"strings"
 	"testing"
 
+	"undercurrent/ingest"
 	"undercurrent/inverse"
 	"undercurrent/inverse/simulate"
 )
@@ -42,20 +43,7 @@ func simulatedDoc(t *testing.T, sc *simulate.Scenario) *Document {
 	if err != nil {
 		t.Fatal(err)
 	}
-	byKey := map[string]*inverse.Problem{}
-	var keys []string
-	for i := range s.Time {
-		k := s.Group[i]
-		p := byKey[k]
-		if p == nil {
-			p = &inverse.Problem{}
-			byKey[k] = p
-			keys = append(keys, k)
-		}
-		p.Points = append(p.Points, [3]float64{s.X[i], s.Y[i], s.Z[i]})
-		p.Fields = append(p.Fields, [3]float64{s.Bx[i], s.By[i], s.Bz[i]})
-	}
-	sort.Strings(keys)
+	byKey, keys := groupProblems(s)
 	ground := 0.0
 	var fits []Fit
 	for _, k := range keys {
@@ -127,4 +115,24 @@ func TestTeeScenarioSteps(t *testing.T) {
 			t.Errorf("seed %d: %d changes of more than 5 A, want the one at the tee", seed, big)
 		}
 	}
+}
+
+// groupProblems splits simulated readings s into one problem per group,
+// with the group keys sorted.
+func groupProblems(s *ingest.Samples) (map[string]*inverse.Problem, []string) {
+	byKey := map[string]*inverse.Problem{}
+	var keys []string
+	for i := range s.Time {
+		k := s.Group[i]
+		p := byKey[k]
+		if p == nil {
+			p = &inverse.Problem{}
+			byKey[k] = p
+			keys = append(keys, k)
+		}
+		p.Points = append(p.Points, [3]float64{s.X[i], s.Y[i], s.Z[i]})
+		p.Fields = append(p.Fields, [3]float64{s.Bx[i], s.By[i], s.Bz[i]})
+	}
+	sort.Strings(keys)
+	return byKey, keys
 }
