@@ -54,7 +54,7 @@ func TestBuildRefusesRepeatedOrEmptyKeys(t *testing.T) {
 	}
 }
 
-// refit fits fit i again with settings s, recording them in Fit.Settings.
+// refit fits fit i again with settings s, storing them in Fit.Settings.
 func refit(t *testing.T, f *Fit, s *inverse.Settings) {
 	t.Helper()
 	res, err := inverse.FitLines(f.Problem, s)
