@@ -73,33 +73,8 @@ func TestCommissionThenHold(t *testing.T) {
 	a := site.Assets[0]
 	pctx, pcancel := context.WithTimeout(context.Background(), 30*time.Second)
 	defer pcancel()
-	publish := func(from, to int) { // seconds
-		for b := 10 * from; b < 10*to; b++ {
-			for _, s := range a.Sensors {
-				f := pipeLine.Field(s.Position, pipeAmps)
-				bt := &broker.Batch{Asset: a.Name, Sensor: s.Name}
-				for i := 0; i < 10; i++ {
-					bt.Time = append(bt.Time, t0+0.1*float64(b)+0.01*float64(i))
-					bt.Bx = append(bt.Bx, f[0]*1e9+pipeEarth[0]+0.3*rng.NormFloat64())
-					bt.By = append(bt.By, f[1]*1e9+pipeEarth[1]+0.3*rng.NormFloat64())
-					bt.Bz = append(bt.Bz, f[2]*1e9+pipeEarth[2]+0.3*rng.NormFloat64())
-				}
-				if _, err := broker.PublishBatch(pctx, h.js, bt, broker.ContentJSON); err != nil {
-					t.Fatal(err)
-				}
-			}
-		}
-	}
-	readAll := func() []Estimate {
-		var out []Estimate
-		scan(context.Background(), h.js, broker.StreamEstimates, broker.EstimateSubject(a.Name), func(d []byte) bool {
-			var e Estimate
-			json.Unmarshal(d, &e)
-			out = append(out, e)
-			return true
-		})
-		return out
-	}
+	publish := func(from, to int) { publishPipe(pctx, t, h, a, rng, from, to) }
+	readAll := func() []Estimate { return readEstimates(h, a.Name) }
 	publish(0, 4)
 	var ests []Estimate
 	waitFor(t, 30*time.Second, "8 estimates", func() bool { ests = readAll(); return len(ests) >= 8 })
@@ -179,4 +154,38 @@ func TestCommissionThenHold(t *testing.T) {
 	if err := stop(); err != nil {
 		t.Fatal(err)
 	}
+}
+
+// publishPipe publishes the pipe's field (pipeLine carrying pipeAmps, by
+// Biot-Savart, on pipeEarth, with 0.3 nT of noise from rng) at asset a's
+// sensors, 100 Hz in 0.1 s batches, from second from to second to of t0.
+func publishPipe(ctx context.Context, t *testing.T, h *harness, a AssetConfig, rng *rand.Rand, from, to int) {
+	t.Helper()
+	for b := 10 * from; b < 10*to; b++ {
+		for _, s := range a.Sensors {
+			f := pipeLine.Field(s.Position, pipeAmps)
+			bt := &broker.Batch{Asset: a.Name, Sensor: s.Name}
+			for i := range 10 {
+				bt.Time = append(bt.Time, t0+0.1*float64(b)+0.01*float64(i))
+				bt.Bx = append(bt.Bx, f[0]*1e9+pipeEarth[0]+0.3*rng.NormFloat64())
+				bt.By = append(bt.By, f[1]*1e9+pipeEarth[1]+0.3*rng.NormFloat64())
+				bt.Bz = append(bt.Bz, f[2]*1e9+pipeEarth[2]+0.3*rng.NormFloat64())
+			}
+			if _, err := broker.PublishBatch(ctx, h.js, bt, broker.ContentJSON); err != nil {
+				t.Fatal(err)
+			}
+		}
+	}
+}
+
+// readEstimates returns every estimate stored for the asset, in order.
+func readEstimates(h *harness, asset string) []Estimate {
+	var out []Estimate
+	scan(context.Background(), h.js, broker.StreamEstimates, broker.EstimateSubject(asset), func(d []byte) bool {
+		var e Estimate
+		json.Unmarshal(d, &e)
+		out = append(out, e)
+		return true
+	})
+	return out
 }

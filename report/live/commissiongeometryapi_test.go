@@ -8,8 +8,6 @@ import (
 	"net/http"
 	"testing"
 	"time"
-
-	"undercurrent/ingest/broker"
 )
 
 // TestCommissionedGeometryPublished: the asset's endpoint publishes the geometry
@@ -32,21 +30,7 @@ func TestCommissionedGeometryPublished(t *testing.T) {
 	rng := rand.New(rand.NewPCG(31, 32))
 	pctx, pcancel := context.WithTimeout(context.Background(), 30*time.Second)
 	defer pcancel()
-	for b := range 30 {
-		for _, s := range a.Sensors {
-			f := pipeLine.Field(s.Position, pipeAmps)
-			bt := &broker.Batch{Asset: a.Name, Sensor: s.Name}
-			for i := range 10 {
-				bt.Time = append(bt.Time, t0+0.1*float64(b)+0.01*float64(i))
-				bt.Bx = append(bt.Bx, f[0]*1e9+pipeEarth[0]+0.3*rng.NormFloat64())
-				bt.By = append(bt.By, f[1]*1e9+pipeEarth[1]+0.3*rng.NormFloat64())
-				bt.Bz = append(bt.Bz, f[2]*1e9+pipeEarth[2]+0.3*rng.NormFloat64())
-			}
-			if _, err := broker.PublishBatch(pctx, h.js, bt, broker.ContentJSON); err != nil {
-				t.Fatal(err)
-			}
-		}
-	}
+	publishPipe(pctx, t, h, a, rng, 0, 3)
 	var ai AssetInfo
 	waitFor(t, 30*time.Second, "the geometry on the asset's endpoint", func() bool {
 		resp, err := http.Get("http://" + svc.HTTPAddr() + "/api/v1/assets/kestrel-moor")

@@ -28,33 +28,8 @@ func TestCommissionedSiteConductorsChanged(t *testing.T) {
 	rng := rand.New(rand.NewPCG(21, 22))
 	pctx, pcancel := context.WithTimeout(context.Background(), 60*time.Second)
 	defer pcancel()
-	publish := func(from, to int) { // seconds
-		for b := 10 * from; b < 10*to; b++ {
-			for _, s := range a.Sensors {
-				f := pipeLine.Field(s.Position, pipeAmps)
-				bt := &broker.Batch{Asset: a.Name, Sensor: s.Name}
-				for i := range 10 {
-					bt.Time = append(bt.Time, t0+0.1*float64(b)+0.01*float64(i))
-					bt.Bx = append(bt.Bx, f[0]*1e9+pipeEarth[0]+0.3*rng.NormFloat64())
-					bt.By = append(bt.By, f[1]*1e9+pipeEarth[1]+0.3*rng.NormFloat64())
-					bt.Bz = append(bt.Bz, f[2]*1e9+pipeEarth[2]+0.3*rng.NormFloat64())
-				}
-				if _, err := broker.PublishBatch(pctx, h.js, bt, broker.ContentJSON); err != nil {
-					t.Fatal(err)
-				}
-			}
-		}
-	}
-	readAll := func() []Estimate {
-		var out []Estimate
-		scan(context.Background(), h.js, broker.StreamEstimates, broker.EstimateSubject(a.Name), func(d []byte) bool {
-			var e Estimate
-			json.Unmarshal(d, &e)
-			out = append(out, e)
-			return true
-		})
-		return out
-	}
+	publish := func(from, to int) { publishPipe(pctx, t, h, a, rng, from, to) }
+	readAll := func() []Estimate { return readEstimates(h, a.Name) }
 	_, stop := h.runService(t, site, "kestrel")
 	publish(0, 4)
 	waitFor(t, 30*time.Second, "8 estimates", func() bool { return len(readAll()) >= 8 })
