@@ -1257,7 +1257,12 @@ def pair_quantities(f, sep, su, i, j):
 
 def fit(pts, y, count, azimuth=None, dip=None):
     reset_counts()
+    # Problem.validate and FitLines' checks: finite readings, an extent, an anomaly.
+    if len(pts) < 3 or not (np.isfinite(pts).all() and np.isfinite(y).all()):
+        raise ValueError("too few readings, or readings not finite")
     sv = Survey(pts, y)
+    if sv.extent == 0 or not np.abs(sv.anomaly()).max() > 0:
+        raise ValueError("no extent or no anomaly")
     if sv.single and (azimuth is None or dip is None):
         raise OffPath("single traverse with free angles")
     return Fitter(sv, count, azimuth, dip).run()
