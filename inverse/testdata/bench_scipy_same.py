@@ -18,7 +18,8 @@ written, and the script stops with an error if it meets one):
   line's seeds from the one-line fit's residuals and the three splits of the first;
 - screening: every start's sum of squares at its seed, on the same subsample (every
   4th reading of surveys over 256 readings), ranked by a stable sort; here vectorised
-  over the starts (one batch of basis evaluations and QRs), the same evaluations;
+  over the starts (one batch of basis evaluations and small least-squares solves), the
+  same evaluations;
 - the pre-iteration on the subsample, then the polish on every reading, with the same
   limits (a rough one-line fit of 5 + 1 iterations seeding the two-line fit), the same
   acceptance rules (quick accept on a single traverse, two starts agreeing or one at
@@ -54,8 +55,8 @@ written, and the script stops with an error if it meets one):
 
 Python is given every advantage that does not change the work done: vectorised
 numpy over the readings (no Python loop over readings anywhere), over the starts in
-the screening and over the difference steps of the sigmas; LAPACK QR and triangular
-solves; one BLAS thread (the Go benchmark runs on one core, -cpu 1); the fit's full
+the screening and over the difference steps of the sigmas; LAPACK for the
+factorisations; one BLAS thread (the Go benchmark runs on one core, -cpu 1); the fit's full
 residuals taken from the projection already at hand where Go rebuilds the basis;
 LAPACK's triangular routines called directly (scipy.linalg.lapack), without the
 checking wrappers that cost more than the solves on these small systems.
