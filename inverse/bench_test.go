@@ -111,6 +111,8 @@ func BenchmarkFitAutoCountNineTraverses(b *testing.B) {
 // one-sigma uncertainties from the Jacobian at the solution), timed the same way (CPU
 // time per fit). The Go fit does more than the Python one: it seeds itself from the
 // field, ranks several starts, and derives sigmas for depth, offset, azimuth and dip.
+// testdata/bench_scipy_same.py does that same work in numpy and scipy, step for step,
+// and checks its fits against testdata/bench_fits.txt.
 func BenchmarkScipyMirror(b *testing.B) {
 	for _, c := range benchCases {
 		b.Run(strings.TrimSuffix(c.file, ".csv"), func(b *testing.B) {
