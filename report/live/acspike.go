@@ -9,7 +9,7 @@ import (
 
 // acSpikeSigmas is how far, in robust standard deviations, a reading of
 // an AC window must depart from the waveform fitted to the sensor's
-// window to be left out as a spike (despikeAC): the DC windows' cut-off
+// window to be left out as a spike (acSpikes): the DC windows' cut-off
 // (dcSpikeSigmas), for the same reason, so that noise is not cut.
 const acSpikeSigmas = dcSpikeSigmas
 
@@ -19,25 +19,25 @@ const acSpikeSigmas = dcSpikeSigmas
 const acDespikeMin = dcDespikeMin
 
 // acSamplesPerParam is the fewest samples per column of the waveform
-// model that despikeAC fits: with fewer, a single reading pulls the fit
+// model that acSpikes fits: with fewer, a single reading pulls the fit
 // towards itself by a large share of its departure (its leverage, about
 // columns / samples) and the robust spread of the residuals is too
 // uncertain to cut at.
 const acSamplesPerParam = 4
 
 // acMaxHarmonic is the highest harmonic of the window's frequency in the
-// waveform model of despikeAC: mains fields carry odd harmonics (the third
+// waveform model of acSpikes: mains fields carry odd harmonics (the third
 // and fifth most), which a fundamental-only fit would leave in the
 // residuals and so raise the spread the spikes are judged against.
 const acMaxHarmonic = 5
 
 // acMaxSpikeShare is the largest share of a sensor's readings that
-// despikeAC leaves out: when more depart from the fitted waveform, the
+// acSpikes marks: when more depart from the fitted waveform, the
 // model does not describe the window (the current changed within it in a
 // way the model does not follow), and none is left out.
 const acMaxSpikeShare = 0.25
 
-// acDespikeRounds bounds the fit-and-judge rounds of despikeAC, and
+// acDespikeRounds bounds the fit-and-judge rounds of acSpikes, and
 // acTrimRounds its trimmed starting steps.
 const (
 	acDespikeRounds = 10

@@ -83,7 +83,7 @@ type reduced struct {
 	// averages out).
 	totals []float64
 	// spikes counts, per sensor, the readings left out of a DC window's
-	// mean (despikeDC) or an AC window's demodulation (despikeAC) as
+	// mean (despikeDC) or an AC window's demodulation (acSpikes, despikeACWindow) as
 	// spikes; nil when none.
 	spikes map[string]int
 }
