@@ -36,8 +36,8 @@ type storedGeometry struct {
 // commissionInputs are the settings of an asset's site file entry that
 // its commissioning used: the conductor entries in their order (names;
 // the points and directions given, which name, turn and place the fitted
-// lines), the sensors in their order (names, positions, orientations:
-// where the readings fitted were taken), the mode and frequency, and the
+// lines), the sensors by name (positions, orientations: where the
+// readings fitted were taken), the mode and frequency, and the
 // commissioning period.
 type commissionInputs struct {
 	Mode       string           `json:"mode"`
@@ -71,6 +71,9 @@ func commissionInputsOf(a *AssetConfig) *commissionInputs {
 	for _, s := range a.Sensors {
 		in.Sensors = append(in.Sensors, sensorInput{Name: s.Name, Position: s.Position, Orientation: s.Orientation})
 	}
+	// The sensors' order does not enter the fit's result, the conductors'
+	// does (without points, it names the lines from left to right).
+	sort.Slice(in.Sensors, func(i, j int) bool { return in.Sensors[i].Name < in.Sensors[j].Name })
 	for _, c := range a.Conductors {
 		ci := conductorInput{Name: c.Name}
 		if c.pointSet {

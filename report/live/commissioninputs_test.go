@@ -94,8 +94,9 @@ func TestCommissionedSitePointMoved(t *testing.T) {
 }
 
 // inputsDiff names each change of the commissioning settings: a sensor
-// moved or turned, a direction given, the mode, frequency and period, and a
-// changed order of the conductors.
+// moved or turned, a direction given, the mode, frequency and period; the
+// same site file, or its sensors listed in another order, give the same
+// digest.
 func TestCommissionInputsDiffNamesChanges(t *testing.T) {
 	base := testSite(t, commissionSite).Assets[0]
 	old := commissionInputsOf(&base)
@@ -126,5 +127,10 @@ func TestCommissionInputsDiffNamesChanges(t *testing.T) {
 	same := testSite(t, commissionSite).Assets[0]
 	if commissionInputsOf(&same).digest() != old.digest() {
 		t.Errorf("the same site file gives another digest")
+	}
+	// The sensors listed in another order: the same readings, the same fit.
+	same.Sensors[0], same.Sensors[4] = same.Sensors[4], same.Sensors[0]
+	if got := commissionInputsOf(&same); got.digest() != old.digest() {
+		t.Errorf("sensors listed in another order give another digest (%s)", inputsDiff(old, got))
 	}
 }
