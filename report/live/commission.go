@@ -2,6 +2,8 @@ package live
 
 import (
 	"context"
+	"crypto/sha256"
+	"encoding/hex"
 	"encoding/json"
 	"errors"
 	"fmt"
@@ -23,6 +25,143 @@ type storedGeometry struct {
 	// every window's sigmas (absent from geometries stored by earlier
 	// versions, whose windows' sigmas leave it out).
 	Uncertainty *geometryUncertainty `json:"uncertainty,omitempty"`
+	// Inputs are the site file's settings the geometry was commissioned
+	// with, and InputsDigest their digest (commissionInputs.digest): a
+	// geometry whose settings the site file has changed since is not
+	// used. Both are absent from geometries stored by earlier versions.
+	Inputs       *commissionInputs `json:"inputs,omitempty"`
+	InputsDigest string            `json:"inputs_digest,omitempty"`
+}
+
+// commissionInputs are the settings of an asset's site file entry that
+// its commissioning used: the conductor entries in their order (names;
+// the points and directions given, which name, turn and place the fitted
+// lines), the sensors by name (positions, orientations: where the
+// readings fitted were taken), the mode and frequency, and the
+// commissioning period.
+type commissionInputs struct {
+	Mode       string           `json:"mode"`
+	Frequency  float64          `json:"frequency,omitempty"`
+	Commission float64          `json:"commission_s"`
+	Sensors    []sensorInput    `json:"sensors"`
+	Conductors []conductorInput `json:"conductors"`
+}
+
+// sensorInput is one sensor of commissionInputs.
+type sensorInput struct {
+	Name        string     `json:"name"`
+	Position    [3]float64 `json:"position"`
+	Orientation [3]float64 `json:"orientation"`
+}
+
+// conductorInput is one conductor entry of commissionInputs; Point and
+// Direction are nil when the site file does not give them.
+type conductorInput struct {
+	Name      string      `json:"name"`
+	Point     *[3]float64 `json:"point,omitempty"`
+	Direction *[3]float64 `json:"direction,omitempty"`
+}
+
+// commissionInputsOf returns the commissioning settings of asset a.
+func commissionInputsOf(a *AssetConfig) *commissionInputs {
+	in := &commissionInputs{Mode: a.Mode, Commission: a.Commission.Seconds(), Sensors: []sensorInput{}, Conductors: []conductorInput{}}
+	if a.Mode == "ac" {
+		in.Frequency = a.Frequency
+	}
+	for _, s := range a.Sensors {
+		in.Sensors = append(in.Sensors, sensorInput{Name: s.Name, Position: s.Position, Orientation: s.Orientation})
+	}
+	// The sensors' order does not enter the fit's result, the conductors'
+	// does (without points, it names the lines from left to right).
+	sort.Slice(in.Sensors, func(i, j int) bool { return in.Sensors[i].Name < in.Sensors[j].Name })
+	for _, c := range a.Conductors {
+		ci := conductorInput{Name: c.Name}
+		if c.pointSet {
+			p := c.Point
+			ci.Point = &p
+		}
+		if c.dirSet {
+			d := c.Direction
+			ci.Direction = &d
+		}
+		in.Conductors = append(in.Conductors, ci)
+	}
+	return in
+}
+
+// digest is the SHA-256 of the settings' JSON, in hex: the same settings
+// give the same digest (encoding/json writes each number so that it reads
+// back the same).
+func (in *commissionInputs) digest() string {
+	data, _ := json.Marshal(in)
+	sum := sha256.Sum256(data)
+	return hex.EncodeToString(sum[:])
+}
+
+// inputsDiff says how the commissioning settings site differ from those
+// stored with a geometry, naming each change.
+func inputsDiff(stored, site *commissionInputs) string {
+	if stored == nil {
+		return "the settings stored with the geometry are missing"
+	}
+	var parts []string
+	vec := func(v *[3]float64) string {
+		if v == nil {
+			return "not given"
+		}
+		return fmt.Sprintf("[%g, %g, %g]", v[0], v[1], v[2])
+	}
+	if stored.Mode != site.Mode {
+		parts = append(parts, fmt.Sprintf("mode %s, now %s", stored.Mode, site.Mode))
+	}
+	if stored.Frequency != site.Frequency {
+		parts = append(parts, fmt.Sprintf("frequency %g Hz, now %g Hz", stored.Frequency, site.Frequency))
+	}
+	if stored.Commission != site.Commission {
+		parts = append(parts, fmt.Sprintf("commission %g s, now %g s", stored.Commission, site.Commission))
+	}
+	names := func(n int, at func(int) string) []string {
+		out := make([]string, n)
+		for i := range out {
+			out[i] = at(i)
+		}
+		return out
+	}
+	sn := names(len(stored.Sensors), func(i int) string { return stored.Sensors[i].Name })
+	cn := names(len(site.Sensors), func(i int) string { return site.Sensors[i].Name })
+	if strings.Join(sn, "\x00") != strings.Join(cn, "\x00") {
+		parts = append(parts, fmt.Sprintf("sensors %s, now %s", strings.Join(sn, ", "), strings.Join(cn, ", ")))
+	} else {
+		for i, s := range site.Sensors {
+			o := stored.Sensors[i]
+			if o.Position != s.Position {
+				parts = append(parts, fmt.Sprintf("sensor %s position %s, now %s", s.Name, vec(&o.Position), vec(&s.Position)))
+			}
+			if o.Orientation != s.Orientation {
+				parts = append(parts, fmt.Sprintf("sensor %s orientation %s, now %s", s.Name, vec(&o.Orientation), vec(&s.Orientation)))
+			}
+		}
+	}
+	sn = names(len(stored.Conductors), func(i int) string { return stored.Conductors[i].Name })
+	cn = names(len(site.Conductors), func(i int) string { return site.Conductors[i].Name })
+	if strings.Join(sn, "\x00") != strings.Join(cn, "\x00") {
+		parts = append(parts, fmt.Sprintf("conductors %s, now %s", strings.Join(sn, ", "), strings.Join(cn, ", ")))
+	} else {
+		same := func(a, b *[3]float64) bool { return (a == nil) == (b == nil) && (a == nil || *a == *b) }
+		for i, c := range site.Conductors {
+			o := stored.Conductors[i]
+			if !same(o.Point, c.Point) {
+				parts = append(parts, fmt.Sprintf("conductor %s point %s, now %s", c.Name, vec(o.Point), vec(c.Point)))
+			}
+			if !same(o.Direction, c.Direction) {
+				parts = append(parts, fmt.Sprintf("conductor %s direction %s, now %s", c.Name, vec(o.Direction), vec(c.Direction)))
+			}
+		}
+	}
+	if len(parts) == 0 {
+		return "the settings' digest differs"
+	}
+	return strings.Join(parts, "; ")
 }
 
 // loadGeometry sets up the estimator: from the site file for model
@@ -50,6 +189,27 @@ func (w *assetWorker) loadGeometry(ctx context.Context) error {
 			// name and fit the old ones while the API lists the new.
 			w.log.Warn("the stored geometry's conductors differ from the site file's ("+diff+"): it is forgotten and the asset commissioned again from the next windows, as POST /api/v1/assets/"+a.Name+"/recommission does",
 				"stored", conductorNames(g.Conductors), "site", conductorNames(a.Conductors))
+			if err := w.fenced(); err != nil {
+				return err
+			}
+			if err := w.svc.stores.State.Delete(ctx, geometryKey(a.Name)); err != nil {
+				return fmt.Errorf("live: asset %s: forget geometry: %w", a.Name, err)
+			}
+			return nil
+		}
+		site := commissionInputsOf(a)
+		switch {
+		case g.InputsDigest == "":
+			w.log.Warn("the stored geometry carries no record of the site file's settings it was commissioned with (an earlier version's): a change of the conductors' points or directions, or of the sensors, is not noticed; recommission the asset to have it")
+		case g.InputsDigest != site.digest():
+			// The conductors keep their names but the site file moved
+			// their points or turned their directions (or moved the
+			// sensors, or changed the mode, frequency or commissioning
+			// period) since: the geometry was fitted and named from
+			// settings that no longer hold.
+			diff := inputsDiff(g.Inputs, site)
+			w.log.Warn("the site file's settings for commissioning differ from those the stored geometry was commissioned with ("+diff+"): it is forgotten and the asset commissioned again from the next windows, as POST /api/v1/assets/"+a.Name+"/recommission does",
+				"changes", diff)
 			if err := w.fenced(); err != nil {
 				return err
 			}
@@ -139,7 +299,8 @@ func (w *assetWorker) commission(win *window) error {
 	if uerr != nil {
 		w.log.Warn("the commissioned geometry's uncertainty cannot be found: the windows' sigmas leave it out", "err", uerr)
 	}
-	g := storedGeometry{Conductors: conds, From: w.pending[0].Start, To: win.End, Worker: w.svc.id, Uncertainty: unc}
+	in := commissionInputsOf(w.asset)
+	g := storedGeometry{Conductors: conds, From: w.pending[0].Start, To: win.End, Worker: w.svc.id, Uncertainty: unc, Inputs: in, InputsDigest: in.digest()}
 	data, _ := json.Marshal(g)
 	if err := w.fenced(); err != nil {
 		return err

@@ -49,10 +49,12 @@ type Estimate struct {
 	Sensors int               `json:"sensors"`
 	Samples int               `json:"samples"`
 	Missing map[string]string `json:"missing,omitempty"`
-	// Spikes counts, per sensor, the readings of a DC window left out of
-	// its mean as spikes: more than 10 robust standard deviations off the
-	// running median of up to 100 neighbours (see despikeDC); absent when
-	// none were. Samples counts the readings used, without them.
+	// Spikes counts, per sensor, the readings left out as spikes: of a DC
+	// window's mean, more than 10 robust standard deviations off the
+	// running median of up to 100 neighbours (see despikeDC); of an AC
+	// window's demodulation, more than 10 off the waveform fitted to the
+	// sensor's window (see acSpikes). Absent when none were. Samples
+	// counts the readings used, without them.
 	Spikes map[string]int `json:"spikes,omitempty"`
 	// DataLost is set on the first window after data that the broker
 	// removed (data_retention, data_max_bytes) before the worker read it:

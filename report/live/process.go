@@ -83,8 +83,17 @@ type reduced struct {
 	// averages out).
 	totals []float64
 	// spikes counts, per sensor, the readings left out of a DC window's
-	// mean as spikes (despikeDC); nil when none.
+	// mean (despikeDC) or an AC window's demodulation (acSpikes, despikeACWindow) as
+	// spikes; nil when none.
 	spikes map[string]int
+}
+
+// addSpikes counts k readings of sensor name left out as spikes.
+func (r *reduced) addSpikes(name string, k int) {
+	if r.spikes == nil {
+		r.spikes = map[string]int{}
+	}
+	r.spikes[name] += k
 }
 
 // dcSpikeSigmas is how far, in robust standard deviations, a reading of
@@ -216,16 +225,22 @@ func (p *processor) reduce(w *window) *reduced {
 				r.missing[s.Name] = err.Error()
 				continue
 			} else if k > 0 {
-				if r.spikes == nil {
-					r.spikes = map[string]int{}
-				}
-				r.spikes[s.Name] = k
+				r.addSpikes(s.Name, k)
 			}
 		}
 		use = append(use, d)
 	}
 	if a.Mode == "ac" && len(use) > 0 {
+		// Despiked at the site's frequency first, so that a spike does
+		// not lead the frequency search (windowFrequency) astray; then,
+		// when the window's frequency is another, again at it: the
+		// waveform off the site's frequency leaves residuals at it that
+		// hide smaller spikes.
+		despikeACWindow(use, a.Frequency, r, a.Sensors)
 		r.freq, r.freqSigma = windowFrequency(use, a.Frequency)
+		if r.freq != a.Frequency && despikeACWindow(use, r.freq, r, a.Sensors) {
+			r.freq, r.freqSigma = windowFrequency(use, a.Frequency)
+		}
 	}
 	var ns []int
 	for _, d := range use {

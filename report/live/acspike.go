@@ -1,0 +1,313 @@
+package live
+
+import (
+	"math"
+	"sort"
+
+	"gonum.org/v1/gonum/mat"
+)
+
+// acSpikeSigmas is how far, in robust standard deviations, a reading of
+// an AC window must depart from the waveform fitted to the sensor's
+// window to be left out as a spike (acSpikes): the DC windows' cut-off
+// (dcSpikeSigmas), for the same reason, so that noise is not cut.
+const acSpikeSigmas = dcSpikeSigmas
+
+// acDespikeMin is the fewest samples an AC window's sensor needs to be
+// despiked, as for DC (dcDespikeMin), and at least acSamplesPerParam per
+// column of the waveform model.
+const acDespikeMin = dcDespikeMin
+
+// acSamplesPerParam is the fewest samples per column of the waveform
+// model that acSpikes fits: with fewer, a single reading pulls the fit
+// towards itself by a large share of its departure (its leverage, about
+// columns / samples) and the robust spread of the residuals is too
+// uncertain to cut at.
+const acSamplesPerParam = 4
+
+// acMaxHarmonic is the highest harmonic of the window's frequency in the
+// waveform model of acSpikes: mains fields carry odd harmonics (the third
+// and fifth most), which a fundamental-only fit would leave in the
+// residuals and so raise the spread the spikes are judged against.
+const acMaxHarmonic = 5
+
+// acMaxSpikeShare is the largest share of a sensor's readings that
+// acSpikes marks: when more depart from the fitted waveform, the
+// model does not describe the window (the current changed within it in a
+// way the model does not follow), and none is left out.
+const acMaxSpikeShare = 0.25
+
+// acDespikeRounds bounds the fit-and-judge rounds of acSpikes, and
+// acTrimRounds its trimmed starting steps.
+const (
+	acDespikeRounds = 10
+	acTrimRounds    = 4
+)
+
+// acSpikes marks the readings of one sensor's AC window that are spikes
+// (a logger glitch, a bit error, a short burst of them: one reading of
+// 1e5 nT among 1000 moved the window's phasor by sqrt(2) spike/n, 140 nT,
+// and a conductor's current by an ampere). The window's waveform is
+// fitted to every axis by least squares at freq (Hz): the fundamental,
+// its harmonics up to acMaxHarmonic below the sampling limit
+// (nyquistFactor), a quadratic drift of the static field, and a linear
+// and quadratic change of the fundamental's amplitude and phase (the
+// current changing within the window). A reading is marked when the
+// residual of any axis departs from zero by more than acSpikeSigmas
+// robust standard deviations (1.4826 times the median absolute residual
+// of the readings fitted, the axis's own), and the fit is repeated
+// without the readings marked until they no longer change; the first fit
+// is found by trimming (see below). It returns nil when none is marked,
+// when the sensor has too few samples, or when more than acMaxSpikeShare
+// of them would be.
+func acSpikes(d *sensorData, freq float64) []bool {
+	n := len(d.t)
+	if n < acDespikeMin || !(freq > 0) {
+		return nil
+	}
+	span := d.t[n-1] - d.t[0]
+	if !(span > 0) {
+		return nil
+	}
+	rate := float64(n-1) / span
+	H := 1
+	for H < acMaxHarmonic && float64(H+1)*freq*nyquistFactor <= rate*(1+1e-6) {
+		H++
+	}
+	cols := func(h int) int { return 9 + 2*(h-1) }
+	for H > 1 && n < acSamplesPerParam*cols(H) {
+		H--
+	}
+	p := cols(H)
+	if n < acSamplesPerParam*p {
+		return nil
+	}
+	// The basis at every reading; time about the window's middle, in
+	// half-spans, so that the columns are of order one.
+	var tm float64
+	for _, t := range d.t {
+		tm += t - d.t[0]
+	}
+	tm /= float64(n)
+	u := make([]float64, n)
+	var m2 float64
+	for i, t := range d.t {
+		u[i] = (t - d.t[0] - tm) / (span / 2)
+		m2 += u[i] * u[i]
+	}
+	m2 /= float64(n)
+	basis := mat.NewDense(n, p, nil)
+	w := 2 * math.Pi * freq
+	for i, t := range d.t {
+		row := basis.RawRowView(i)
+		s, c := math.Sincos(w * (t - d.t[0]))
+		q := u[i]*u[i] - m2
+		row[0], row[1], row[2], row[3], row[4] = c, s, 1, u[i], q
+		row[5], row[6], row[7], row[8] = u[i]*c, u[i]*s, q*c, q*s
+		for h := 2; h <= H; h++ {
+			sh, ch := math.Sincos(float64(h) * w * (t - d.t[0]))
+			row[9+2*(h-2)], row[10+2*(h-2)] = ch, sh
+		}
+	}
+	axes := [3][]float64{d.bx, d.by, d.bz}
+	for _, col := range axes {
+		for _, v := range col {
+			if math.IsNaN(v) || math.IsInf(v, 0) {
+				return nil
+			}
+		}
+	}
+	// fit fits the model to the readings not in drop and returns every
+	// reading's score: its largest residual over the axes in robust
+	// standard deviations of the axis's residuals of the readings fitted
+	// (1.4826 times their median absolute value).
+	score := make([]float64, n)
+	res := make([][]float64, 3)
+	for k := range res {
+		res[k] = make([]float64, n)
+	}
+	abs := make([]float64, 0, n)
+	fit := func(drop []bool, kept int) bool {
+		X := mat.NewDense(kept, p, nil)
+		Y := mat.NewDense(kept, 3, nil)
+		r := 0
+		for i := range n {
+			if drop[i] {
+				continue
+			}
+			X.SetRow(r, basis.RawRowView(i))
+			for k := range 3 {
+				Y.Set(r, k, axes[k][i])
+			}
+			r++
+		}
+		var qr mat.QR
+		qr.Factorize(X)
+		var beta, pred mat.Dense
+		if err := qr.SolveTo(&beta, false, Y); err != nil {
+			return false
+		}
+		pred.Mul(basis, &beta)
+		clear(score)
+		for k := range 3 {
+			scale := 0.0
+			abs = abs[:0]
+			for i := range n {
+				res[k][i] = axes[k][i] - pred.At(i, k)
+				if !drop[i] {
+					scale = math.Max(scale, math.Abs(axes[k][i]))
+					abs = append(abs, math.Abs(res[k][i]))
+				}
+			}
+			sort.Float64s(abs)
+			// Noise-free readings leave residuals of rounding only: a
+			// floor far above it and far below any sensor's noise.
+			sigma := math.Max(1.4826*abs[len(abs)/2], 1e-9*scale)
+			if !(sigma > 0) || math.IsInf(sigma, 0) {
+				return false
+			}
+			for i := range n {
+				score[i] = math.Max(score[i], math.Abs(res[k][i])/sigma)
+			}
+		}
+		for _, v := range score {
+			if math.IsNaN(v) {
+				return false
+			}
+		}
+		return true
+	}
+	// Start: the least-trimmed-squares concentration steps. A burst pulls
+	// the least squares fit towards itself, so that the spread of the
+	// residuals grows with it and hides it from a cut at acSpikeSigmas
+	// (one of 150 readings of 5e4 nT among 1000 did); each step fits the
+	// share 1 - acMaxSpikeShare of the readings that the previous fit
+	// missed least, which brings the fit to the waveform of the clean
+	// readings when a burst is shorter than that share.
+	drop := make([]bool, n)
+	left := 0
+	sorted := make([]float64, n)
+	keep := n - int(acMaxSpikeShare*float64(n))
+	for range acTrimRounds {
+		if !fit(drop, n-left) {
+			return nil
+		}
+		copy(sorted, score)
+		sort.Float64s(sorted)
+		limit := sorted[keep-1]
+		next := make([]bool, n)
+		nextLeft := 0
+		for i, v := range score {
+			if v > limit {
+				next[i] = true
+				nextLeft++
+			}
+		}
+		same := nextLeft == left
+		for i := range n {
+			same = same && next[i] == drop[i]
+		}
+		drop, left = next, nextLeft
+		if same {
+			break
+		}
+	}
+	// Then judge every reading against the fit to those kept, and fit
+	// again to those within acSpikeSigmas, until they no longer change.
+	for range acDespikeRounds {
+		if !fit(drop, n-left) {
+			return nil
+		}
+		next := make([]bool, n)
+		nextLeft := 0
+		for i, v := range score {
+			if !(v <= acSpikeSigmas) {
+				next[i] = true
+				nextLeft++
+			}
+		}
+		if float64(nextLeft) > acMaxSpikeShare*float64(n) {
+			return nil
+		}
+		same := nextLeft == left
+		for i := range n {
+			same = same && next[i] == drop[i]
+		}
+		drop, left = next, nextLeft
+		if same {
+			break
+		}
+	}
+	if left == 0 {
+		return nil
+	}
+	return drop
+}
+
+// despikeACWindow leaves out of the AC window's sensors use the readings
+// that are spikes at freq (acSpikes), counting them in r, and reports
+// whether it left any out. A reading that departs at the same time as a
+// reading of another sensor (within a quarter of the period, or one and
+// a half sample intervals of either sensor) is kept: the conductors'
+// field changed (a current switched within the window, which the model of
+// acSpikes does not follow), seen by every sensor near them, while a
+// spike in a raw waveform is its own sensor's.
+func despikeACWindow(use []sensorData, freq float64, r *reduced, names []SensorConfig) bool {
+	marks := make([][]float64, len(use)) // each sensor's marked times
+	flags := make([][]bool, len(use))
+	dt := make([]float64, len(use))
+	for j := range use {
+		d := &use[j]
+		flags[j] = acSpikes(d, freq)
+		if n := len(d.t); n > 1 {
+			dt[j] = (d.t[n-1] - d.t[0]) / float64(n-1)
+		}
+		for i, f := range flags[j] {
+			if f {
+				marks[j] = append(marks[j], d.t[i])
+			}
+		}
+	}
+	any := false
+	for j := range use {
+		if flags[j] == nil {
+			continue
+		}
+		d := &use[j]
+		left := 0
+		for i, f := range flags[j] {
+			if !f {
+				continue
+			}
+			for q := range use {
+				if q == j || len(marks[q]) == 0 {
+					continue
+				}
+				tol := math.Max(0.25/freq, 1.5*math.Max(dt[j], dt[q]))
+				k := sort.SearchFloat64s(marks[q], d.t[i]-tol)
+				if k < len(marks[q]) && marks[q][k] <= d.t[i]+tol {
+					flags[j][i] = false // seen by another sensor
+					break
+				}
+			}
+			if flags[j][i] {
+				left++
+			}
+		}
+		if left == 0 {
+			continue
+		}
+		n := len(d.t)
+		t := make([]float64, 0, n-left)
+		bx, by, bz := make([]float64, 0, cap(t)), make([]float64, 0, cap(t)), make([]float64, 0, cap(t))
+		for i := range n {
+			if !flags[j][i] {
+				t, bx, by, bz = append(t, d.t[i]), append(bx, d.bx[i]), append(by, d.by[i]), append(bz, d.bz[i])
+			}
+		}
+		d.t, d.bx, d.by, d.bz = t, bx, by, bz
+		r.addSpikes(names[d.i].Name, left)
+		any = true
+	}
+	return any
+}
