@@ -356,7 +356,10 @@ func checkDipoles(fits []Fit, r *route.Route) bool {
 			if ds != nil && !(ds.current > currentK(f.Problem.Phasors != nil)*ds.currentSigma) {
 				// With the object the conductor carries no current:
 				// the object alone.
-				ds = searchAlone(f, ds.obj.Point)
+				with := ds
+				if ds = searchAlone(f, ds.obj.Point); ds != nil {
+					ds.with = with
+				}
 			}
 			found[i] = ds
 		}()
@@ -824,6 +827,11 @@ type dipoleSearch struct {
 	// alone is true when the object alone, with no conductor, explains
 	// the readings (searchAlone); result then holds the object only.
 	alone bool
+	// with is, for an object alone, the search with the conductors
+	// (searchDipole) that found the object first and, with it, no
+	// current in them: why the object was searched alone (see
+	// aloneHeldFit).
+	with *dipoleSearch
 	// inducing is the magnitude of the field the object sits in as far
 	// as the fit knows it, T: the Earth's (dipoleEarthMax) for DC, and
 	// the fitted conductors' field at the object (see credible).
@@ -1558,7 +1566,7 @@ func searchAlone(f *Fit, start [3]float64) *dipoleSearch {
 		s2 = p.Sigma * p.Sigma
 	}
 	ds := &dipoleSearch{gain: bic(p, res) - (base + k*math.Log(n)), atTop: pos[2] >= loc.zTop-0.005, alone: true,
-		inducing: inducingField(p, nil, r, pos)}
+		inducing: inducingField(p, nil, r, pos), moment: r, momentAt: 0}
 	var sig, momAxisSigma [3]float64
 	var momSigma float64
 	if jf := newJointFit(loc, pos); jf != nil {
