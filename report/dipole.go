@@ -414,6 +414,11 @@ func checkDipoles(fits []Fit, r *route.Route) bool {
 			}
 		}
 	}
+	// The traverses beside an object read its field's tail: refitted
+	// without it (objecttail.go).
+	if objectTails(fits, kept) {
+		changed = true
+	}
 	return changed
 }
 
