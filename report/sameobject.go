@@ -42,8 +42,9 @@ import (
 //
 // Two objects truly a few metres apart are not merged: each fit places its
 // own within centimetres, far more sigmas apart than sameObjectK. An object
-// alone (no conductor under it, searchAlone) seen from two traverses is not
-// merged either (see DEVELOPERS.md).
+// alone (no conductor under it, searchAlone) seen from two traverses is
+// merged too (aloneHeldFit): the other traverse then reads "no current
+// found", its group listing no dipole.
 const sameObjectK = 3
 
 // sameObject reports whether objects a and b, fitted at two traverses, are
