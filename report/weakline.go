@@ -97,6 +97,12 @@ func lineEvidence(f *Fit, res *inverse.Result, ac bool) (drop, limit float64, ok
 // which it is where it can be formed.
 func noCurrentProblem(f *Fit, res *inverse.Result, s *inverse.SourceEstimate, ac bool) string {
 	head := noCurrentHead(s.Current, s.CurrentSigma, ac)
+	if f.sameObject != "" {
+		// An object alone seen from this traverse too (aloneHeldFit): the
+		// field its readings hold is the object's, reported at the other
+		// group, not a line's, which lineEvidence would count.
+		return head + fmt.Sprintf(" once the field of the magnetised object reported at %s, which these readings hold too, is allowed for: no conductor is detected under this group, though one too deep or weak for these readings may lie there; its position and depth mean nothing", f.sameObject)
+	}
 	drop, limit, ok := lineEvidence(f, res, ac)
 	along := alongClause(f)
 	switch {
