@@ -2123,6 +2123,9 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 	fmt.Fprintf(w, "fitted %d group(s), %d %s, in %.2f s: %s\n",
 		len(doc.Groups), readings, unit, took.Seconds(), counts)
 	ref := "below the sensors' mean height"
+	if doc.DepthReference.PerGroup {
+		ref = "below each group's own sensors (their mean height, or with --sensor-height their height over each line where the logged heights differ), not one height"
+	}
 	if doc.DepthReference.Kind == report.DepthBelowGround {
 		ref = fmt.Sprintf("below the ground at up = %g m", doc.DepthReference.Z)
 	}
