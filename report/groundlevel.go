@@ -449,7 +449,7 @@ func referenceLevelWarnings(fits []Fit, origin *Origin) (warn []string, off map[
 	}
 	frame := ""
 	if origin != nil {
-		frame = fmt.Sprintf(" On a latitude/longitude/height log, up is measured from the origin's height (%.2f m in the log's height datum), so up = %g m is height %.2f m there; give the ground as its height minus %.2f m.",
+		frame = fmt.Sprintf(" On a latitude/longitude/height log, up is measured from the origin's height (%.2f m in the log's height datum), so up = %g m is height %.2f m there; give --reference-z as the ground's height in that datum minus %.2f m.",
 			origin.H, zref, origin.H+zref, origin.H)
 	}
 	name := func(k string) string {
