@@ -53,6 +53,12 @@ type Fit struct {
 	Walk  string
 	Start time.Time
 
+	// levelOff, when not 0, is the mean height, m, of the group's sensors
+	// above a --reference-z level that one flat level does not fit
+	// (referenceLevelWarnings): a line above that level is not taken for
+	// a fault of the data.
+	levelOff float64
+
 	object *route.Object // the magnetised object found by checkDipoles
 	// surface is an object checkDipoles would have accepted but that lies
 	// above the ground (aboveGround, surface.go): reported as a
@@ -267,8 +273,23 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 	// Build's own copy of the fits: the analyses below replace some of
 	// their results (leadByPosition, checkDipoles, markSplitSums).
 	fits = append([]Fit(nil), fits...)
+	// A --reference-z level against the sensors' own heights: groups
+	// whose sensors stand far above it are not blamed for a line above it.
+	levelWarn, levelOff := referenceLevelWarnings(fits, d.Frame.Origin)
+	for i := range fits {
+		if h, ok := levelOff[fits[i].Key]; ok {
+			fits[i].levelOff = h
+		}
+	}
 	analyse := func() (*route.Route, error) {
 		d.Groups = nil
+		// With --sensor-height, depths below the sensors' height over
+		// each line (groundlevel.go), for the refits too.
+		if rs.SensorHeight > 0 {
+			for i := range fits {
+				groundAtLines(&fits[i])
+			}
+		}
 		// Conductor 1 by position where the currents do not pick it
 		// (lead.go).
 		leadByPosition(fits, ac)
@@ -343,6 +364,11 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 		}
 	}
 	markPoorGroups(d.Groups, r)
+	if d.DepthReference.Kind == DepthBelowSensors {
+		d.DepthReference.PerGroup = perGroupReference(fits)
+	}
+	d.Warnings = append(d.Warnings, sensorHeightWarnings(fits, rs.SensorHeight, bs.GroundSigma)...)
+	d.Warnings = append(d.Warnings, levelWarn...)
 	shared := sharedMisfit(fits, &bs, rs)
 	if shared != "" {
 		d.Warnings = append([]string{shared}, d.Warnings...)
@@ -821,6 +847,8 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute boo
 		g.Problem = noCurrentProblem(f, res, &res.Sources[0], ac)
 	case near != "":
 		g.Problem = near
+	case aboveFail && f.levelOff != 0:
+		g.Problem = fmt.Sprintf("the fit is set aside, not failed: the ground level given does not hold here, where the sensors' mean height is %.2f m above it (one flat --reference-z level does not fit this survey; see the warnings), and the line lies above that level (depth %s m below it), which says nothing of the readings", f.levelOff, PlusMinus(res.Sources[0].Depth, res.Sources[0].DepthSigma))
 	case aboveFail:
 		g.Problem = "the fit failed: " + above
 	case lostFail:

@@ -207,6 +207,13 @@ type DepthReference struct {
 	// relative to the reference, m, that the cover sigmas include; zero
 	// when none was given (cover sigmas then cover the reading noise only).
 	GroundSigma float64 `json:"ground_sigma_m,omitempty"`
+	// PerGroup is true, for DepthBelowSensors, when the groups' depths are
+	// not all measured from one height: their sensors' mean heights differ
+	// by over a centimetre (a sloping route), or, with SensorHeight, some
+	// groups' depths are below the sensors' height where they pass over
+	// each line (groundAtLines). Z is then the first group's mean sensor
+	// height only; each group's own is its Centroid's up.
+	PerGroup bool `json:"per_group,omitempty"`
 }
 
 // Signal modes.

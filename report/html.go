@@ -303,6 +303,12 @@ func depthRefText(d *Document) string {
 	}
 	// fix: a mean height of -1e-17 m reads "0.00", not "-0.00".
 	s := fmt.Sprintf("below the sensors' mean height (up = %s m)", fix(d.DepthReference.Z, 2))
+	if d.DepthReference.PerGroup {
+		s = "below each traverse's own sensors (their mean height, given as the up of each traverse's centre; with the sensor height given, the sensors' height where they pass over each line when the logged heights differ there), not one height for the survey"
+		if lo, hi, ok := groupHeights(d); ok {
+			s = fmt.Sprintf("below each traverse's own sensors (their mean height, up = %s to %s m from traverse to traverse; with the sensor height given, the sensors' height where they pass over each line when the logged heights differ there), not one height for the survey", fix(lo, 2), fix(hi, 2))
+		}
+	}
 	if h := d.DepthReference.SensorHeight; h > 0 {
 		s += fmt.Sprintf("; sensors %.2f m above ground, so cover = depth − %.2f m", h, h)
 	} else {
@@ -1535,4 +1541,16 @@ func profileGroups(d *Document) []*Group {
 		return a != nil && b != nil && *a < *b
 	})
 	return out
+}
+
+// groupHeights is the range of the groups' mean sensor heights (their
+// centroids' up), m; ok is false when no group has readings.
+func groupHeights(d *Document) (lo, hi float64, ok bool) {
+	lo, hi = math.Inf(1), math.Inf(-1)
+	for _, g := range d.Groups {
+		if g.Points > 0 {
+			lo, hi, ok = math.Min(lo, g.Centroid[2]), math.Max(hi, g.Centroid[2]), true
+		}
+	}
+	return lo, hi, ok
 }

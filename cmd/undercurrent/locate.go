@@ -104,9 +104,9 @@ func (o *locateOptions) setFlags(fs *pflag.FlagSet) {
 	fs.StringVarP(&o.out, "output", "o", "", "write results.json, results.csv, findings.csv, route.geojson and report.html into `DIR`")
 	fs.Float64Var(&o.minCover, "min-cover", 0, "report cover shallower than `M` metres (needs a ground reference: --sensor-height or --reference-z)")
 	fs.StringVar(&o.coverCode, "cover-code", "", "the code or practice the minimum cover comes from, quoted in the report (\"NEC Table 300.5\")")
-	fs.Float64Var(&o.referenceZ, "reference-z", 0, "report depths below the ground surface at up = `Z` metres, instead of below the sensors' mean height")
-	fs.Float64Var(&o.sensorHeight, "sensor-height", 0, "the sensors were carried `H` metres above the ground (cover = depth - H)")
-	fs.Float64Var(&o.groundSigma, "ground-sigma", 0, "the ground level is known to `S` metres (one sigma) from the depth reference, e.g. how steadily the sensors were held above it; added to the cover sigmas (which otherwise cover the reading noise only)")
+	fs.Float64Var(&o.referenceZ, "reference-z", 0, "report depths below the ground surface at up = `Z` metres, one flat level for the whole survey, instead of below the sensors' mean height; up is the log's local frame (on a latitude/longitude/height log, relative to the origin's height, by default the first reading's), so a ground height of G in the log's datum is Z = G minus the origin's height; warned when it lies above the sensors or does not fit a route whose sensors climb")
+	fs.Float64Var(&o.sensorHeight, "sensor-height", 0, "the sensors were carried `H` metres above the ground (cover = depth - H); with several sensors at different heights, H is the mean height of all of them; with heights in the log, the ground over each line is taken as the sensors' height where they pass over it minus H, else the ground is taken as level under each traverse")
+	fs.Float64Var(&o.groundSigma, "ground-sigma", 0, "the ground level is known to `S` metres (one sigma) from the depth reference, e.g. how steadily the sensors were held above it; added to the cover sigmas (which otherwise cover the reading noise only); an unsteady height that is not logged also biases the depths and makes their sigmas too small, which S does not mend: log the heights")
 	fs.Float64Var(&o.noise, "noise", 0, "reading noise per axis, `NT` nanotesla, of each reading (for AC, each window's phasor then has NT/sqrt(samples in it)); default, or 0: estimated from the fits")
 	fs.BoolVar(&o.robust, "robust", false, "down-weight outlying readings (Huber weights)")
 	fs.BoolVar(&o.despike, "despike", false, "remove spikes (readings off the local trend of their neighbours, and off a line current's shape fitted to them) before fitting")
@@ -2123,6 +2123,9 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 	fmt.Fprintf(w, "fitted %d group(s), %d %s, in %.2f s: %s\n",
 		len(doc.Groups), readings, unit, took.Seconds(), counts)
 	ref := "below the sensors' mean height"
+	if doc.DepthReference.PerGroup {
+		ref = "below each group's own sensors (their mean height, or with --sensor-height their height over each line where the logged heights differ), not one height"
+	}
 	if doc.DepthReference.Kind == report.DepthBelowGround {
 		ref = fmt.Sprintf("below the ground at up = %g m", doc.DepthReference.Z)
 	}
