@@ -328,9 +328,13 @@ func lag1Within(res []float64, stride int, starts []int) (rho float64, pairs int
 // variance (1 + rho)/(1 - rho) of AR(1) noise, an offset's (an odd
 // derivative of the field, with little of a mean in it) less.
 //
-// No variance falls below its plain value (each parameter's row and column
-// scaled up to it where it would): a long-run variance estimated from a
-// short series is biased low, and the plain covariance is the least the
+// No variance falls below its plain value, nor below the AR(1) part's
+// alone (K = I; each parameter's row and column scaled up to the larger
+// where it would): a long-run variance estimated from a short series is
+// biased low, the whitened residuals' autocorrelations too (a negative
+// lag-1 one, which the kernel would take for less variance, is what the
+// filter leaves of noise the AR(1) model does not fit: white noise beside
+// a drift, a slow oscillation), and the plain covariance is the least the
 // readings' marginal noise allows. Unresolved parameters keep their plain
 // variance and no covariance. Nil when the residuals are all zero.
 func (f *fitter) serialSandwich(c *candidate, c0 *mat.SymDense, unres []bool, r1 float64) (*mat.SymDense, error) {
@@ -475,7 +479,7 @@ func (f *fitter) serialSandwich(c *candidate, c0 *mat.SymDense, unres []bool, r1
 			return AR1MaxRho
 		}
 		lo, hi := 0.0, AR1MaxRho
-		for range 40 {
+		for range 24 { // to 6e-8 of the range
 			mid := (lo + hi) / 2
 			if expected(mid) < target {
 				lo = mid
@@ -534,7 +538,11 @@ func (f *fitter) serialSandwich(c *candidate, c0 *mat.SymDense, unres []bool, r1
 	L := min(int(math.Ceil(S))-1, n/len(starts)/2)
 	// B = (1 - rho^2) G^T K G: J^T Sigma J for unit marginal variance.
 	B := make([]float64, k*k)
+	var B0 []float64 // the AR(1) part alone, K = I
 	for l := 0; l <= max(L, 0); l++ {
+		if l == 1 {
+			B0 = slices.Clone(B)
+		}
 		w := 1.0
 		if l > 0 {
 			w = (1 - float64(l)/S) * gammaU(l) / gu0
@@ -563,16 +571,22 @@ func (f *fitter) serialSandwich(c *candidate, c0 *mat.SymDense, unres []bool, r1
 			}
 		}
 	}
-	scale := 1.0
-	if !(f.prob.Sigma > 0) {
-		den := math.Max(N-trace(cz, B), (N-float64(k))/100)
-		scale = (N - float64(k)) / den
+	if B0 == nil {
+		B0 = B
 	}
-	h := mul(mul(cz, B), cz)
+	scaleOf := func(B []float64) float64 {
+		if f.prob.Sigma > 0 {
+			return 1
+		}
+		den := math.Max(N-trace(cz, B), (N-float64(k))/100)
+		return (N - float64(k)) / den
+	}
+	scale, scale0 := scaleOf(B), scaleOf(B0)
+	h, h0 := mul(mul(cz, B), cz), mul(mul(cz, B0), cz)
 	out := mat.NewSymDense(k, nil)
 	d := make([]float64, k)
 	for i := range k {
-		hv, p := scale*h[i*k+i], cz[i*k+i]
+		hv, p := scale*h[i*k+i], math.Max(cz[i*k+i], scale0*h0[i*k+i])
 		d[i] = 1
 		if !unres[i] && hv > 0 && p > hv {
 			d[i] = math.Sqrt(p / hv)
