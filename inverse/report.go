@@ -356,6 +356,14 @@ func (f *fitter) summariseAsIs(c *candidate) (*summary, error) {
 			}
 			su.widen, su.widenLo, su.widenHi = serialWidening(paramNames(sp), vf)
 			cov0 = h
+		} else {
+			// No sandwich: every parameter by the AR(1) factor.
+			su.widen, su.widenLo, su.widenHi = f.serialWiden, f.serialWiden, f.serialWiden
+			vf = make([]float64, len(unres))
+			for j := range vf {
+				vf[j] = f.serialWiden
+			}
+			cov0.ScaleSym(f.serialWiden, cov0)
 		}
 	}
 	cov0.ScaleSym(su.sigma*su.sigma, cov0)

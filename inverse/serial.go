@@ -18,8 +18,12 @@ import (
 // is what the fit expects). A DC line fit therefore measures the lag-1
 // autocorrelation of its residuals along the readings (ResidualAR1, in
 // the order of the Problem's points, which is the order they were taken
-// along the traverse) and, when it is significant, widens its covariance by
-// the AR(1) variance factor AR1Factor (see summary.widen).
+// along the traverse; within each traverse, traverseStarts) and, when it is
+// significant, takes its covariance from a sandwich on the full Jacobian
+// with the residuals' correlation (serialSandwich), each parameter widened
+// by how its own signature weighs that correlation. The count's choice
+// (serialCount) still counts the readings with the AR(1) variance factor
+// AR1Factor.
 
 // AR1Factor is the factor by which residuals with lag-1 autocorrelation rho
 // inflate the variance of a fitted parameter against white residuals of the
@@ -336,7 +340,9 @@ func lag1Within(res []float64, stride int, starts []int) (rho float64, pairs int
 // filter leaves of noise the AR(1) model does not fit: white noise beside
 // a drift, a slow oscillation), and the plain covariance is the least the
 // readings' marginal noise allows. Unresolved parameters keep their plain
-// variance and no covariance. Nil when the residuals are all zero.
+// variance and no covariance. Nil when the residuals are all zero or the
+// fit is not of three values per reading (the caller then widens by the
+// AR(1) factor alone).
 func (f *fitter) serialSandwich(c *candidate, c0 *mat.SymDense, unres []bool, r1 float64) (*mat.SymDense, error) {
 	sp := c.sp
 	r0, err := sp.fullResiduals(c.x)
@@ -356,7 +362,7 @@ func (f *fitter) serialSandwich(c *candidate, c0 *mat.SymDense, unres []bool, r1
 	}
 	n := rows / 3
 	if rows != 3*n || len(res) != rows || k != c0.SymmetricDim() || n != len(f.sv.pts) {
-		return nil, fmt.Errorf("inverse: serial sandwich: %d rows, %d residuals, %d columns for %d parameters", rows, len(res), k, c0.SymmetricDim())
+		return nil, nil // not a DC fit of one value per reading and axis
 	}
 	g0 := sumSq(res) / float64(rows)
 	if !(g0 > 0) {
