@@ -29,11 +29,10 @@ type summary struct {
 	zref       float64
 	refName    string
 	// rho is the lag-1 autocorrelation of a DC fit's residuals along the
-	// readings and widen the variance factor its covariance took for it
-	// (serialWiden; 1 when not widened).
-	// widenLo and widenHi are the least and greatest variance factors
-	// of the sources' resolved parameters; widen is the first line's
-	// current's (else the greatest).
+	// readings, and widen the variance factor the first line's current
+	// took for it (serialSandwich; the greatest of the sources' parameters
+	// when there is no line; 1 when not widened); widenLo and widenHi are
+	// the least and greatest factors of the sources' resolved parameters.
 	rho, widen, widenLo, widenHi float64
 	// under holds each line's point under the readings' centroid in plan, its
 	// depth and the depth's sigma (pointAlong), which report gives the Result in
@@ -333,8 +332,6 @@ func (f *fitter) summariseAsIs(c *candidate) (*summary, error) {
 		return nil, fmt.Errorf("inverse: %d readings leave no degrees of freedom to estimate the noise for %d parameters; give Problem.Sigma", n, k)
 	}
 	su.chi2 = c.rss / (su.sigma * su.sigma)
-	// Residuals correlated along the readings: the covariance under
-	// independence is widened (report, serialFactor).
 	// Residuals correlated along the readings: the covariance under
 	// independence gives way to the sandwich (report, serialFactor;
 	// serialSandwich), each parameter's variance widened by its own factor.
