@@ -419,10 +419,14 @@ type Result struct {
 	// distance between the lines. Nil when there is none.
 	SameWay []PairEstimate
 	// SerialCorrelation is the lag-1 autocorrelation of a DC fit's residuals
-	// along the readings (pooled over the axes), and SigmaWidening the factor
-	// by which every sigma and the square root of the Covariance were widened
-	// for it: sqrt(AR1Factor) when it exceeds twice its standard error under
-	// white noise, else 1 (the note SerialNotePrefix says so). Both 0 for AC.
+	// along the readings (pooled over the axes, within traverses), and
+	// SigmaWidening the factor by which the first line's current's sigma
+	// was widened for it (the greatest of the sources' when there is no
+	// line) when it exceeds twice its standard error under white noise,
+	// else 1 (the note SerialNotePrefix says so, with the range of the other
+	// sigmas' widening). The Covariance is then the sandwich of
+	// serialSandwich, each parameter widened by its own factor, none
+	// below the covariance under independence. Both 0 for AC.
 	SerialCorrelation, SigmaWidening float64
 	// Notes are cautions about the whole fit.
 	Notes []string

@@ -29,9 +29,11 @@ type summary struct {
 	zref       float64
 	refName    string
 	// rho is the lag-1 autocorrelation of a DC fit's residuals along the
-	// readings and widen the variance factor its covariance took for it
-	// (serialWiden; 1 when not widened).
-	rho, widen float64
+	// readings, and widen the variance factor the first line's current
+	// took for it (serialSandwich; the greatest of the sources' parameters
+	// when there is no line; 1 when not widened); widenLo and widenHi are
+	// the least and greatest factors of the sources' resolved parameters.
+	rho, widen, widenLo, widenHi float64
 	// under holds each line's point under the readings' centroid in plan, its
 	// depth and the depth's sigma (pointAlong), which report gives the Result in
 	// place of the lines' Point, Depth and DepthSigma.
@@ -331,12 +333,37 @@ func (f *fitter) summariseAsIs(c *candidate) (*summary, error) {
 	}
 	su.chi2 = c.rss / (su.sigma * su.sigma)
 	// Residuals correlated along the readings: the covariance under
-	// independence is widened (report, serialFactor).
+	// independence gives way to the sandwich (report, serialFactor;
+	// serialSandwich), each parameter's variance widened by its own factor.
 	su.widen = 1
+	var vf []float64 // per parameter: the sandwich's variance over the plain one
 	if f.serialWiden > 1 {
-		su.rho, su.widen = f.serialRho, f.serialWiden
+		su.rho = f.serialRho
+		h, err := f.serialSandwich(c, cov0, unres, f.serialRho)
+		if err != nil {
+			return nil, err
+		}
+		if h != nil {
+			vf = make([]float64, len(unres))
+			for j := range vf {
+				vf[j] = 1
+				if p := cov0.At(j, j); p > 0 && !unres[j] {
+					vf[j] = h.At(j, j) / p
+				}
+			}
+			su.widen, su.widenLo, su.widenHi = serialWidening(paramNames(sp), vf)
+			cov0 = h
+		} else {
+			// No sandwich: every parameter by the AR(1) factor.
+			su.widen, su.widenLo, su.widenHi = f.serialWiden, f.serialWiden, f.serialWiden
+			vf = make([]float64, len(unres))
+			for j := range vf {
+				vf[j] = f.serialWiden
+			}
+			cov0.ScaleSym(f.serialWiden, cov0)
+		}
 	}
-	cov0.ScaleSym(su.sigma*su.sigma*su.widen, cov0)
+	cov0.ScaleSym(su.sigma*su.sigma, cov0)
 	if f.set.Robust && sp.w != nil && !(f.prob.Sigma > 0) {
 		// Huber's asymptotic covariance in place of the weighted least-squares one,
 		// which holds the weights fixed and takes the scale from the down-weighted
@@ -346,7 +373,11 @@ func (f *fitter) summariseAsIs(c *candidate) (*summary, error) {
 			return nil, err
 		}
 		if hc != nil {
-			hc.ScaleSym(su.widen, hc)
+			for i := range vf {
+				for j := i; j < len(vf); j++ {
+					hc.SetSym(i, j, hc.At(i, j)*math.Sqrt(vf[i]*vf[j]))
+				}
+			}
 			cov0 = hc
 		}
 		if err := sp.evaluate(c.x); err != nil {
@@ -1066,7 +1097,7 @@ func (f *fitter) report(c *candidate, scores []ModelScore) (*Result, error) {
 	if sp.nrhs == 1 {
 		r.SerialCorrelation, r.SigmaWidening = su.rho, math.Sqrt(su.widen)
 		if su.widen > 1 {
-			r.Notes = append(r.Notes, serialNote(su.rho, su.widen))
+			r.Notes = append(r.Notes, serialNote(su.rho, su.widen, su.widenLo, su.widenHi))
 		}
 	}
 	if n := unsupportedDipolesNote(r.Sources, f.set.Dipoles); n != "" {

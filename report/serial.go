@@ -5,10 +5,12 @@ import (
 	"strings"
 )
 
-// serialWarnWidening is the widening of a DC fit's sigmas for residuals
-// correlated from reading to reading (inverse.Result.SigmaWidening) from
-// which the run warns (serialWarning): 1.5 times, a lag-1 autocorrelation
-// of about 0.38.
+// serialWarnWidening is the widening of a DC fit's current sigma for
+// residuals correlated from reading to reading (inverse.Result.SigmaWidening,
+// the first line's current's; each parameter is widened by its own factor)
+// from which the run warns (serialWarning): 1.5 times, the current's
+// widening under AR(1) noise of lag-1 correlation about 0.38 on a traverse
+// long against the line's depth.
 const serialWarnWidening = 1.5
 
 // serialWarning returns the run warning for fits whose sigmas were widened
@@ -58,6 +60,6 @@ func serialWarning(fits []Fit) string {
 	if n == 1 {
 		lead = "the group's fit"
 	}
-	return fmt.Sprintf("%s leave residuals correlated from reading to reading along the traverse, so the readings carry less than their number suggests: their sigmas were widened %s times for it (see each group's notes). Either the fitted lines do not fully describe the field there (a bend or change of depth, an object, a tee or crossing service, a conductor's end, a sensor not calibrated: see the other findings on these groups), or the noise itself is correlated (slow drift of the sensor, tilt wander of a hand-held sensor, passing traffic, mains hum aliased into a slow DC log); where no such feature explains it, steady the sensor, log faster or away from traffic, and repeat a traverse to check",
+	return fmt.Sprintf("%s leave residuals correlated from reading to reading along the traverse, so the readings carry less than their number suggests: their currents' sigmas were widened %s times for it, and their other sigmas each by its own factor (see each group's notes). Either the fitted lines do not fully describe the field there (a bend or change of depth, an object, a tee or crossing service, a conductor's end, a sensor not calibrated: see the other findings on these groups), or the noise itself is correlated (slow drift of the sensor, tilt wander of a hand-held sensor, passing traffic, mains hum aliased into a slow DC log); where no such feature explains it, steady the sensor, log faster or away from traffic, and repeat a traverse to check",
 		lead, by)
 }

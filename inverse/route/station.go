@@ -58,8 +58,10 @@ type Station struct {
 	// the group's, whichever of its lines the station follows.
 	SigmasPerMisfit float64
 	// Widening is the factor by which the fit widened its sigmas for
-	// residuals correlated along the readings (inverse.Result.SigmaWidening;
-	// 0 or 1 when it did not). A strained station's misfit is the model's
+	// residuals correlated along the readings (inverse.Result.SigmaWidening,
+	// the first line's current's; a DC fit widens each parameter by its own
+	// factor, the depth's under AR(1) noise within a few per cent of the
+	// current's; 0 or 1 when it did not). A strained station's misfit is the model's
 	// error, which its shift counts (strain.go): its current's sigma is
 	// then taken unwidened beside the shift (misfitSigma), not counted
 	// twice. SigmasPerMisfit is per the unwidened sigma.
