@@ -367,7 +367,7 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 	if d.DepthReference.Kind == DepthBelowSensors {
 		d.DepthReference.PerGroup = perGroupReference(fits)
 	}
-	d.Warnings = append(d.Warnings, sensorHeightWarnings(fits, rs.SensorHeight, bs.GroundSigma)...)
+	d.Warnings = append(d.Warnings, sensorHeightWarnings(fits, rs.SensorHeight)...)
 	d.Warnings = append(d.Warnings, levelWarn...)
 	shared := sharedMisfit(fits, &bs, rs)
 	if shared != "" {

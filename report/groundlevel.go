@@ -336,18 +336,16 @@ func stackedHeights(pts [][3]float64) (spread, aboveLowest float64, ok bool) {
 // sensorHeightWarnings are Build's warnings about --sensor-height: groups
 // whose readings stand at several heights at one place (stackedHeights),
 // where depths are below the mean height of all the sensors and the height
-// given must be that mean's; and groups whose logged heights span more than
-// three ground sigmas (and 0.1 m), where cover rests on the sensors having
-// been held at the height given above the ground under the whole traverse.
-func sensorHeightWarnings(fits []Fit, h, groundSigma float64) []string {
+// given must be that mean's. Relief under a traverse draws no warning: with
+// heights logged, the ground is read over each line (groundAtLines), and a
+// sloping GNSS survey would draw it in every group.
+func sensorHeightWarnings(fits []Fit, h float64) []string {
 	if !(h > 0) {
 		return nil
 	}
 	var out []string
 	var stacked []string
 	var spread, above float64
-	var reliefKeys []string
-	var relief float64
 	for _, f := range fits {
 		if f.Problem == nil || len(f.Problem.Points) == 0 {
 			continue
@@ -357,26 +355,10 @@ func sensorHeightWarnings(fits []Fit, h, groundSigma float64) []string {
 			spread = math.Max(spread, s)
 			above = math.Max(above, a)
 		}
-		lo, hi := math.Inf(1), math.Inf(-1)
-		for _, p := range f.Problem.Points {
-			lo, hi = math.Min(lo, p[2]), math.Max(hi, p[2])
-		}
-		if span := hi - lo; span > 3*groundSigma && span > 0.1 {
-			reliefKeys = append(reliefKeys, f.Key)
-			relief = math.Max(relief, span)
-		}
 	}
 	if len(stacked) > 0 {
 		out = append(out, fmt.Sprintf("readings taken at one place stand at heights up to %.2f m apart (several sensors on one pole or cart) in %s: depths are below the mean height of all the sensors, and --sensor-height (%.2f m) must be that mean height above the ground, not one sensor's; here the mean lies %.2f m above the lowest sensor, so if %.2f m is the lowest sensor's height, give %.2f m",
 			spread, groupList(stacked), h, above, h, h+above))
-	}
-	if len(reliefKeys) > 0 {
-		gs := "no --ground-sigma was given"
-		if groundSigma > 0 {
-			gs = fmt.Sprintf("--ground-sigma (%s m) covers the ground level, not that relief", num(groundSigma))
-		}
-		out = append(out, fmt.Sprintf("the sensor heights span up to %.2f m within a group (%s): cover is taken from the heights logged where the sensors pass over each line, minus --sensor-height, so it holds where the sensors were held at that height above the ground there (a log without heights cannot show relief under a traverse, and takes the ground as level); %s",
-			relief, groupList(reliefKeys), gs))
 	}
 	return out
 }
