@@ -925,17 +925,19 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute boo
 			// shares the readings do not part (inverse.Result.SameWay),
 			// the second followed by no track, and the sum nearer the
 			// current of the stations either side (markSplitSums): the
-			// route takes their sum at their centre, not the stronger
-			// share (a cable diving under a road read 0.9 of 2 A at the
-			// bends in its depth, two false steps).
-			g.Notes = append(g.Notes, splitSumNote(sw, ac))
+			// route takes their sum at their centre weighted by their
+			// currents (splitSumCentre), not the stronger share (a
+			// cable diving under a road read 0.9 of 2 A at the bends in
+			// its depth, two false steps).
+			point, dir, depth, depthSigma := splitSumCentre(res, sw)
+			g.Notes = append(g.Notes, splitSumNote(sw, depth, depthSigma, ac))
 			g.SummedSources = &[2]int{0, sw.Lines[1]}
 			if g.OK {
-				st.Point, st.Dir = sw.Point, sw.Dir
+				st.Point, st.Dir = point, dir
 			}
 			st.Current, st.CurrentSigma = sw.NetCurrent, sw.NetCurrentSigma
 			st.Phase, st.PhaseSigma = sw.NetCurrentPhase, sw.NetCurrentPhaseSigma
-			st.Depth, st.DepthSigma = sw.Depth, sw.DepthSigma
+			st.Depth, st.DepthSigma = depth, depthSigma
 			partner = sw.Lines[1]
 		}
 		for j, o := range res.Sources {

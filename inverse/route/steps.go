@@ -540,12 +540,14 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64, bs 
 				{Name: "minimum step", Value: thr, Unit: "%"},
 			}
 		}
-		pos := mid(u[big].Point, u[big+1].Point)
+		// Midway along the conductor drawn through the bracketing
+		// stations' fitted lines, round a bend between them (legPoint).
+		pos := legPoint(u[big], u[big+1], 0.5)
 		if len(crossed) > 0 {
 			// Between the sound stations either side of the poor one:
 			// its own fitted point is as doubtful as its current.
 			k := crossed[len(crossed)/2]
-			pos = mid(u[k-1].Point, u[k+1].Point)
+			pos = legPoint(u[k-1], u[k+1], 0.5)
 		}
 		f := Finding{
 			Kind:     kind,
@@ -860,8 +862,9 @@ func trend(dI, dx, s []float64, skip []bool, j, w int) (g, sigma float64) {
 	return g, sigma
 }
 
-// pointAt interpolates the stations' points (in route order) at chainage
-// c, clamped to their range.
+// pointAt places chainage c on the conductor drawn through the stations' points
+// and fitted lines (in route order; legPoint round a bend between two),
+// clamped to their range.
 func pointAt(ps []*Placed, c float64) [3]float64 {
 	for k := 0; k+1 < len(ps); k++ {
 		a, b := ps[k], ps[k+1]
@@ -872,11 +875,7 @@ func pointAt(ps []*Placed, c float64) [3]float64 {
 		if b.Chainage > a.Chainage {
 			t = math.Min(math.Max((c-a.Chainage)/(b.Chainage-a.Chainage), 0), 1)
 		}
-		var p [3]float64
-		for i := range p {
-			p[i] = a.Point[i] + t*(b.Point[i]-a.Point[i])
-		}
-		return p
+		return legPoint(a, b, t)
 	}
 	return ps[0].Point
 }
