@@ -32,14 +32,15 @@ type summary struct {
 	// readings and widen the variance factor its covariance took for it
 	// (serialWiden; 1 when not widened).
 	rho, widen float64
-	// under holds each line's point under the readings' centroid in plan, its
-	// depth and the depth's sigma (pointAlong), which report gives the Result in
+	// under holds each line's station point (where it crosses the traverse in
+	// plan, or under the readings' centroid: stationAlong), its depth and the
+	// depth's sigma, which report gives the Result in
 	// place of the lines' Point, Depth and DepthSigma.
 	under []underPoint
 }
 
-// underPoint is a line's point under the readings' centroid in plan (see
-// summary.under).
+// underPoint is a line's station point: where it crosses the traverse in plan,
+// or under the readings' centroid (see summary.under, stationAlong).
 type underPoint struct {
 	point             [3]float64
 	depth, depthSigma float64
@@ -698,8 +699,9 @@ const (
 	qCurrent
 	qPhase
 	qRelPhase
-	// The point of the line under the readings' centroid in plan and its depth
-	// (pointAlong): the reported point (Result.Sources); qPointE..qDepth, the point
+	// The line's station point, where it crosses the traverse in plan or under
+	// the readings' centroid, and its depth (stationAlong): the reported point
+	// (Result.Sources); qPointE..qDepth, the point
 	// nearest the centroid in space, serve the fit's own tests (the guard, pairs).
 	qUnderE
 	qUnderN
@@ -819,7 +821,7 @@ func deriveQuantities(sp *separable, sv *survey, zref float64, flip []bool, v []
 }
 
 // underCentroid returns su's sources with each line's point, depth and depth sigma
-// taken at its point under the readings' centroid in plan (summary.under); a depth
+// taken at its station point (summary.under, stationAlong); a depth
 // whose sigma su gives as 0 (not identifiable) keeps 0.
 func underCentroid(su *summary) []SourceEstimate {
 	out := slices.Clone(su.lines)
@@ -838,8 +840,9 @@ func underCentroid(su *summary) []SourceEstimate {
 }
 
 // pointAlong returns how far along unit direction u from a line's point lies the
-// line's reported point (SourceEstimate.Point), given d, the readings' centroid less
-// the line's point: the point whose horizontal position is nearest the centroid's, so
+// line's point under the readings' centroid in plan (the reported point,
+// SourceEstimate.Point, where stationAlong finds no traverse crossing), given d, the
+// readings' centroid less the line's point: the point whose horizontal position is nearest the centroid's, so
 // the line's point under the centroid in plan, where a traverse square to the line
 // crosses it. The point nearest the centroid in space, reported before (and still the
 // one the fit's guard and pairs measure lines by, so that what the fit accepts is as
@@ -870,14 +873,14 @@ const trackParallel = 20 * math.Pi / 180
 // stationAlong returns how far along unit direction u from a line's point lies the
 // line's reported point (SourceEstimate.Point), given d, the readings' centroid less
 // the line's point, and whether that point is where the line crosses the
-// traverse's track in plan. When the readings lie along one traverse
-// (survey.single) the point is the line's point whose horizontal position lies on
+// traverse's track in plan. When the readings lie along one walked traverse
+// (survey.walked) the point is the line's point whose horizontal position lies on
 // the traverse's principal axis through the centroid (survey.t1): where the walked
 // line crosses the conductor, and the depth is the line's there. Before, it was
 // always the point under the centroid in plan (pointAlong), which lies (the
 // centroid's offset along the traverse) x cos(angle) along the line from the
 // crossing on a traverse not square to the line: ten traverses at 40 degrees to a
-// cable, each starting at the cable's side, read their chainages out of order, two
+// cable, each starting at the cable's side, read their chainages out of order, placed two
 // traverses 4 m apart 0.2 m apart, and a leak between the wrong traverses; square
 // traverses 15 degrees off a cable read every chainage 7% short. For a traverse
 // square to the line the two points are the same. The point under the centroid
