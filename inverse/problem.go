@@ -296,9 +296,12 @@ type Identifiable struct {
 type SourceEstimate struct {
 	// Kind is "line" or "dipole".
 	Kind string
-	// Point is the line's point whose horizontal position is nearest the centroid of
-	// the readings (the point nearest in space for a line dipping more than 60
-	// degrees), m ENU, or the dipole's position; Dir is the unit direction along which
+	// Point is, for readings along one traverse, the line's point where it crosses
+	// the traverse's track in plan (the principal axis of the readings' plan
+	// positions through their centroid; AtTrackCrossing), else the line's point whose
+	// horizontal position is nearest the centroid of the readings (the point nearest
+	// in space for a line dipping more than 60 degrees), m ENU, or the dipole's
+	// position; Dir is the unit direction along which
 	// positive current flows, oriented so that the azimuth lies in [0, 180) (zero for
 	// a dipole).
 	Point, Dir [3]float64
@@ -330,6 +333,12 @@ type SourceEstimate struct {
 	Identifiable Identifiable
 	// Notes explain held or unresolved quantities and other cautions.
 	Notes []string
+	// AtTrackCrossing is true when a line's Point (and Depth) is where it crosses
+	// the traverse the readings lie along; false when Point lies under the
+	// readings' centroid in plan: readings not along one traverse (fixed sensors, a
+	// compact group), a traverse within 20 degrees of the line, a line steeper than
+	// 60 degrees, or a dipole.
+	AtTrackCrossing bool
 }
 
 // ModelScore is the information criterion for one candidate number of lines.

@@ -34,17 +34,21 @@ type summary struct {
 	// when there is no line; 1 when not widened); widenLo and widenHi are
 	// the least and greatest factors of the sources' resolved parameters.
 	rho, widen, widenLo, widenHi float64
-	// under holds each line's point under the readings' centroid in plan, its
-	// depth and the depth's sigma (pointAlong), which report gives the Result in
+	// under holds each line's station point (where it crosses the traverse in
+	// plan, or under the readings' centroid: stationAlong), its depth and the
+	// depth's sigma, which report gives the Result in
 	// place of the lines' Point, Depth and DepthSigma.
 	under []underPoint
 }
 
-// underPoint is a line's point under the readings' centroid in plan (see
-// summary.under).
+// underPoint is a line's station point: where it crosses the traverse in plan,
+// or under the readings' centroid (see summary.under, stationAlong).
 type underPoint struct {
 	point             [3]float64
 	depth, depthSigma float64
+	// crossing is true when point is where the line crosses the traverse's
+	// track in plan (survey.stationAlong), not under the centroid.
+	crossing bool
 }
 
 // reorder sorts the candidate's lines by decreasing current magnitude so that results
@@ -457,8 +461,14 @@ func (f *fitter) summariseAsIs(c *candidate) (*summary, error) {
 		e.Dir = dirOf(b[qAzimuth]*math.Pi/180, b[qDip]*math.Pi/180)
 		e.Current, e.CurrentSigma = b[qCurrent], sigmaOf(l*nq+qCurrent)
 		e.Depth, e.DepthSigma = b[qDepth], sigmaOf(l*nq+qDepth)
+		_, crossing := f.sv.stationAlong(sub(f.sv.centroid, e.Point), e.Dir)
 		su.under = append(su.under, underPoint{point: [3]float64{b[qUnderE], b[qUnderN], b[qUnderU]},
-			depth: b[qUnderDepth], depthSigma: sigmaOf(l*nq + qUnderDepth)})
+			depth: b[qUnderDepth], depthSigma: sigmaOf(l*nq + qUnderDepth), crossing: crossing})
+		if h := math.Hypot(e.Dir[0], e.Dir[1]); !crossing && f.sv.walked && f.sv.spread[0] > 0 && h >= 0.5 {
+			// A walked traverse running nearly along the line (stationAlong).
+			a := math.Asin(math.Min(1, math.Abs(e.Dir[0]*f.sv.t1[1]-e.Dir[1]*f.sv.t1[0])/h)) * 180 / math.Pi
+			e.Notes = append(e.Notes, fmt.Sprintf("point under the readings' centre, not where the traverse crosses the line: the traverse runs %.0f degrees from the line, too near along it to place the crossing", a))
+		}
 		e.Offset, e.OffsetSigma = b[qOffset], sigmaOf(l*nq+qOffset)
 		e.Azimuth, e.Dip = b[qAzimuth], b[qDip]
 		geomUnres := unres[off] || unres[off+1]
@@ -720,8 +730,9 @@ const (
 	qCurrent
 	qPhase
 	qRelPhase
-	// The point of the line under the readings' centroid in plan and its depth
-	// (pointAlong): the reported point (Result.Sources); qPointE..qDepth, the point
+	// The line's station point, where it crosses the traverse in plan or under
+	// the readings' centroid, and its depth (stationAlong): the reported point
+	// (Result.Sources); qPointE..qDepth, the point
 	// nearest the centroid in space, serve the fit's own tests (the guard, pairs).
 	qUnderE
 	qUnderN
@@ -814,7 +825,8 @@ func deriveQuantities(sp *separable, sv *survey, zref float64, flip []bool, v []
 			az, dip = az+math.Pi, -dip
 		}
 		pt := add(ln.Point, scale(u, dot(sub(sv.centroid, ln.Point), u)))
-		under := add(ln.Point, scale(u, pointAlong(sub(sv.centroid, ln.Point), u)))
+		along, _ := sv.stationAlong(sub(sv.centroid, ln.Point), u)
+		under := add(ln.Point, scale(u, along))
 		right := [3]float64{math.Cos(az), -math.Sin(az), 0}
 		o := out[l*nQuantities:]
 		o[qPointE], o[qPointN], o[qPointU] = pt[0], pt[1], pt[2]
@@ -840,7 +852,7 @@ func deriveQuantities(sp *separable, sv *survey, zref float64, flip []bool, v []
 }
 
 // underCentroid returns su's sources with each line's point, depth and depth sigma
-// taken at its point under the readings' centroid in plan (summary.under); a depth
+// taken at its station point (summary.under, stationAlong); a depth
 // whose sigma su gives as 0 (not identifiable) keeps 0.
 func underCentroid(su *summary) []SourceEstimate {
 	out := slices.Clone(su.lines)
@@ -853,13 +865,15 @@ func underCentroid(su *summary) []SourceEstimate {
 		if e.DepthSigma > 0 {
 			e.DepthSigma = u.depthSigma
 		}
+		e.AtTrackCrossing = u.crossing
 	}
 	return out
 }
 
 // pointAlong returns how far along unit direction u from a line's point lies the
-// line's reported point (SourceEstimate.Point), given d, the readings' centroid less
-// the line's point: the point whose horizontal position is nearest the centroid's, so
+// line's point under the readings' centroid in plan (the reported point,
+// SourceEstimate.Point, where stationAlong finds no traverse crossing), given d, the
+// readings' centroid less the line's point: the point whose horizontal position is nearest the centroid's, so
 // the line's point under the centroid in plan, where a traverse square to the line
 // crosses it. The point nearest the centroid in space, reported before (and still the
 // one the fit's guard and pairs measure lines by, so that what the fit accepts is as
@@ -878,6 +892,43 @@ func pointAlong(d, u [3]float64) float64 {
 		return (d[0]*u[0] + d[1]*u[1]) / h2
 	}
 	return dot(d, u)
+}
+
+// trackParallel is the angle in plan (radians) within which a traverse running
+// along a line is taken as too near parallel to it to place the line's station
+// where the traverse crosses it (stationAlong): there the crossing moves along the
+// line by the traverse's distance from it over tan of the angle, and the readings'
+// centroid stands in.
+const trackParallel = 20 * math.Pi / 180
+
+// stationAlong returns how far along unit direction u from a line's point lies the
+// line's reported point (SourceEstimate.Point), given d, the readings' centroid less
+// the line's point, and whether that point is where the line crosses the
+// traverse's track in plan. When the readings lie along one walked traverse
+// (survey.walked) the point is the line's point whose horizontal position lies on
+// the traverse's principal axis through the centroid (survey.t1): where the walked
+// line crosses the conductor, and the depth is the line's there. Before, it was
+// always the point under the centroid in plan (pointAlong), which lies (the
+// centroid's offset along the traverse) x cos(angle) along the line from the
+// crossing on a traverse not square to the line: ten traverses at 40 degrees to a
+// cable, each starting at the cable's side, read their chainages out of order, placed two
+// traverses 4 m apart 0.2 m apart, and a leak between the wrong traverses; square
+// traverses 15 degrees off a cable read every chainage 7% short. For a traverse
+// square to the line the two points are the same. The point under the centroid
+// (pointAlong) stays for readings that are not one walked traverse (a few fixed
+// sensors, a compact group, an area), for a traverse within trackParallel of the line, and
+// for a line steeper than 60 degrees.
+func (sv *survey) stationAlong(d, u [3]float64) (float64, bool) {
+	h2 := u[0]*u[0] + u[1]*u[1]
+	if !sv.walked || !(sv.spread[0] > 0) || h2 < 0.25 {
+		return pointAlong(d, u), false
+	}
+	t := sv.t1
+	cr := u[0]*t[1] - u[1]*t[0] // u x t in plan
+	if math.Abs(cr) < math.Sin(trackParallel)*math.Sqrt(h2) {
+		return pointAlong(d, u), false
+	}
+	return (d[0]*t[1] - d[1]*t[0]) / cr, true
 }
 
 // paramNames names the parameters in the order of the covariance: geometry of each

@@ -188,17 +188,20 @@ func heldLine(ln Line, sv *survey, zref float64) heldEstimate {
 	if az >= math.Pi || az < 0 { // vertical or exactly south after rounding
 		az = math.Mod(az+2*math.Pi, math.Pi)
 	}
-	// The line's point under the readings' centroid in plan, as FitLines reports it.
-	pt := add(ln.Point, scale(u, pointAlong(sub(sv.centroid, ln.Point), u)))
+	// The line's point where it crosses the traverse in plan, or under the
+	// readings' centroid, as FitLines reports it (stationAlong).
+	along, crossing := sv.stationAlong(sub(sv.centroid, ln.Point), u)
+	pt := add(ln.Point, scale(u, along))
 	right := [3]float64{math.Cos(az), -math.Sin(az), 0}
 	e := SourceEstimate{
 		Kind: "line", Point: pt, Dir: u,
-		Depth:        zref - pt[2],
-		Offset:       dot(sub(pt, sv.centroid), right),
-		Azimuth:      az * 180 / math.Pi,
-		Dip:          -math.Asin(math.Max(-1, math.Min(1, u[2]))) * 180 / math.Pi,
-		Identifiable: Identifiable{Current: true},
-		Notes:        []string{"geometry held: only the current was fitted"},
+		Depth:           zref - pt[2],
+		Offset:          dot(sub(pt, sv.centroid), right),
+		Azimuth:         az * 180 / math.Pi,
+		Dip:             -math.Asin(math.Max(-1, math.Min(1, u[2]))) * 180 / math.Pi,
+		Identifiable:    Identifiable{Current: true},
+		Notes:           []string{"geometry held: only the current was fitted"},
+		AtTrackCrossing: crossing,
 	}
 	return heldEstimate{e, flip}
 }

@@ -19,6 +19,7 @@ type survey struct {
 	t1       [3]float64 // principal horizontal direction of the positions
 	spread   [2]float64 // RMS spread along t1 and across it, m
 	single   bool       // readings along one traverse
+	walked   bool       // single, and at trackPositions distinct places or more: a walked track, not a few fixed sensors
 	zmin     float64
 	zmean    float64
 	extent   float64      // largest horizontal distance from the centroid, m
@@ -139,7 +140,37 @@ func newSurveyIn(p *Problem, scr *scratch) *survey {
 	sv.t1 = [3]float64{math.Cos(ang), math.Sin(ang), 0}
 	sv.spread = [2]float64{math.Sqrt(l1), math.Sqrt(l2)}
 	sv.single = sv.spread[1] < singleTraverseRatio*sv.spread[0]
+	sv.walked = sv.single && distinctPlaces(p.Points, trackPositions)
 	return sv
+}
+
+// trackPositions is the number of distinct places in plan (1 mm apart or more)
+// from which readings along one line are taken as a walked traverse, whose line
+// a conductor's station lies on (stationAlong): a few fixed sensors in a row,
+// read over and over at the same places, stay a group whose station lies under
+// their centroid.
+const trackPositions = 8
+
+// distinctPlaces reports whether pts lie at k or more places in plan at least
+// 1 mm apart. It stops at the k-th: a walked traverse answers within its first
+// readings, a row of fewer fixed sensors after k comparisons per reading.
+func distinctPlaces(pts [][3]float64, k int) bool {
+	seen := make([][2]float64, 0, k)
+	for _, r := range pts {
+		known := false
+		for _, q := range seen {
+			if math.Abs(r[0]-q[0]) < 1e-3 && math.Abs(r[1]-q[1]) < 1e-3 {
+				known = true
+				break
+			}
+		}
+		if !known {
+			if seen = append(seen, [2]float64{r[0], r[1]}); len(seen) >= k {
+				return true
+			}
+		}
+	}
+	return false
 }
 
 // anomaly returns, per point, a real anomaly vector from data rows d (3 rows per point x

@@ -892,6 +892,7 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute boo
 			// chain and flipped the next station's current: a false
 			// "current rises by 1.880 A" on a constant 1 A pipe.
 			st.Point, st.Dir = s.Point, s.Dir
+			st.UnderCentre = s.Kind == KindLine && !s.AtTrackCrossing
 		}
 		st.Current, st.CurrentSigma = s.Current, s.CurrentSigma
 		st.Phase, st.PhaseSigma = s.Phase, s.PhaseSigma
@@ -907,7 +908,7 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute boo
 			// pair the one current found, for resolved cores their
 			// sum, so that both read alike (circuitOf).
 			if g.OK {
-				st.Point, st.Dir = circ.Point, circ.Dir
+				st.Point, st.Dir, st.UnderCentre = circ.Point, circ.Dir, false
 			}
 			st.Current, st.CurrentSigma = circ.NetCurrent, circ.NetCurrentSigma
 			st.Phase, st.PhaseSigma = circ.NetCurrentPhase, circ.NetCurrentPhaseSigma
@@ -933,7 +934,7 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute boo
 			g.Notes = append(g.Notes, splitSumNote(sw, depth, depthSigma, ac))
 			g.SummedSources = &[2]int{0, sw.Lines[1]}
 			if g.OK {
-				st.Point, st.Dir = point, dir
+				st.Point, st.Dir, st.UnderCentre = point, dir, false
 			}
 			st.Current, st.CurrentSigma = sw.NetCurrent, sw.NetCurrentSigma
 			st.Phase, st.PhaseSigma = sw.NetCurrentPhase, sw.NetCurrentPhaseSigma

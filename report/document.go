@@ -603,6 +603,12 @@ type Station struct {
 	CoverSigma *float64 `json:"cover_sigma_m,omitempty"`
 	// Used is true when the station entered the step and cover checks.
 	Used bool `json:"used"`
+	// UnderCentre is true when Point is the conductor's point under the
+	// centre of the group's readings in plan, not where it crosses their
+	// traverse: the readings do not lie along one traverse (fixed
+	// sensors, a compact group) or it runs within 20 degrees of the
+	// conductor (route.Station.UnderCentre). Absent otherwise.
+	UnderCentre bool `json:"under_readings_centre,omitempty"`
 }
 
 // estimated reports whether s's current and depth are estimates: a

@@ -112,6 +112,7 @@ func (d *Document) routeOf(r *route.Route) *Route {
 			Depth:        p.Depth,
 			DepthSigma:   p.DepthSigma,
 			Used:         p.OK && !p.Dipole,
+			UnderCentre:  p.OK && p.UnderCentre,
 		}
 		if p.AC && !phaseless(&p.Station) {
 			ph, phs := p.Phase, p.PhaseSigma

@@ -909,6 +909,12 @@ func ChainageZero(d *Document) string {
 	// not 360°.
 	bearing := math.Mod(math.Round(math.Atan2(dir[0], dir[1])*180/math.Pi)+360, 360)
 	cross := "where the fitted conductor crosses the first traverse along the route, " + first.Key
+	if first.Used && first.UnderCentre {
+		// The first group's readings are not a traverse across the
+		// conductor (route.Station.UnderCentre): its station is the
+		// conductor's point under their centre.
+		cross = "where the fitted conductor passes under the centre of the first group's readings along the route, " + first.Key + " (not a traverse across it)"
+	}
 	if !first.Used {
 		// The first group's fit failed (or found an object): its point is
 		// the centroid of its readings, not the conductor's, and chainage

@@ -6,6 +6,8 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"regexp"
+	"strconv"
 	"strings"
 	"testing"
 )
@@ -19,6 +21,11 @@ import (
 // headline quoted only the loose station, and the precise values appeared
 // in no finding. Both now give the best determined station beside the
 // shallowest, and it agrees with the truth within kSigma of its sigma.
+// Since the stations lie where the service crosses each traverse's line
+// (not at its point under the readings' centre, far along it from the
+// traverse at 60 degrees), every station reads 0.348-0.367 m with a sigma
+// under 0.02 m, and the shallowest is quoted alone: then that value must
+// be as precise and agree with the truth in the same way.
 func TestLocateCrossingServiceBestDeterminedCover(t *testing.T) {
 	sc, path := scenario(t, "crossing-service.toml")
 	var want float64
@@ -30,19 +37,25 @@ func TestLocateCrossingServiceBestDeterminedCover(t *testing.T) {
 	check := func(seed int, where, text string) {
 		t.Helper()
 		const tag = "best determined at "
-		i := strings.Index(text, tag)
-		if i < 0 {
-			t.Errorf("seed %d: %s gives no best determined station: %q", seed, where, text)
-			return
-		}
-		rest := text[i+len(tag):]
-		j := strings.Index(rest, ": ")
-		if j < 0 {
-			t.Fatalf("seed %d: %s: %q", seed, where, text)
-		}
 		var v, s float64
-		if _, err := fmt.Sscanf(rest[j+2:], "%g ± %g m", &v, &s); err != nil {
-			t.Fatalf("seed %d: %s: %q: %v", seed, where, text, err)
+		if i := strings.Index(text, tag); i >= 0 {
+			rest := text[i+len(tag):]
+			j := strings.Index(rest, ": ")
+			if j < 0 {
+				t.Fatalf("seed %d: %s: %q", seed, where, text)
+			}
+			if _, err := fmt.Sscanf(rest[j+2:], "%g ± %g m", &v, &s); err != nil {
+				t.Fatalf("seed %d: %s: %q: %v", seed, where, text, err)
+			}
+		} else {
+			// No best determined station beside the shallowest: the
+			// shallowest, the first value with a sigma, must be precise.
+			m := regexp.MustCompile(`([0-9.]+) ± ([0-9.]+) m`).FindStringSubmatch(text)
+			if m == nil {
+				t.Fatalf("seed %d: %s gives no cover: %q", seed, where, text)
+			}
+			v, _ = strconv.ParseFloat(m[1], 64)
+			s, _ = strconv.ParseFloat(m[2], 64)
 		}
 		if s > 0.02 || math.Abs(v-want) > kSigma*s+0.001 {
 			t.Errorf("seed %d: %s: best determined cover %.4f ± %.4f m, true %.2f m", seed, where, v, s, want)

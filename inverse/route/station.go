@@ -10,9 +10,16 @@ type Station struct {
 	// Key names the group ("T07", a sensor id, a time window).
 	Key string
 	// Point is a point on the fitted conductor near the group's readings
-	// (inverse.SourceEstimate.Point: under their centroid in plan). When the fit failed (OK false) it should hold
+	// (inverse.SourceEstimate.Point: where it crosses their traverse in
+	// plan, or under their centroid). When the fit failed (OK false) it should hold
 	// the centroid of the readings, so the station can still be placed.
 	Point [3]float64
+	// UnderCentre is true when Point is the conductor's point under the
+	// readings' centroid in plan, not where it crosses their traverse
+	// (inverse.SourceEstimate.AtTrackCrossing false): the readings do not
+	// lie along one traverse, or it runs nearly along the conductor. The
+	// route only passes it on to the report's wording.
+	UnderCentre bool
 	// Dir is the conductor's direction. It need not be a unit vector; a
 	// zero Dir is taken from the route.
 	Dir [3]float64
