@@ -205,7 +205,8 @@
 // stored batch, and kept in the checkpoint for a successor), stuck (one value
 // repeated on an axis for a whole window while the sensor's other axes
 // show a noise that makes so long a run unlikely, or one reading on every
-// axis through two windows running), degraded (reduced chi-square
+// axis through two windows running), saturated (a sensor read within a
+// margin of its stated range_nt on an axis), degraded (reduced chi-square
 // above max_chi2, beyond what a commissioned geometry's error adds, or
 // the solve failed), implausible (readings that do not
 // look like nanotesla: the Earth's field outside earth_field, subject

@@ -52,7 +52,7 @@ type Estimate struct {
 	// messages of its implausible alarms); absent when they do not.
 	Implausible []string `json:"implausible,omitempty"`
 	// Sensors used, samples used, and the sensors left out or short of
-	// samples with why: "silent", "stuck", "131 of 500 samples" (used, but
+	// samples with why: "silent", "stuck", "saturated", "131 of 500 samples" (used, but
 	// more than one sample short of what its rate puts in a window), "2 of
 	// 500 samples, too few to use", or a sine-fit error (AC).
 	Sensors int               `json:"sensors"`
@@ -157,6 +157,7 @@ const (
 	AlarmStep        = "step"         // current changed by more than alarms.step (between windows or within one)
 	AlarmSilent      = "silent"       // sensor sent nothing in the window
 	AlarmStuck       = "stuck"        // sensor repeated one value on an axis
+	AlarmSaturated   = "saturated"    // sensor read at its range (range_nt) on an axis
 	AlarmDegraded    = "degraded"     // reduced chi-square above alarms.max_chi2, or the solve failed
 	// AlarmImplausible: the readings do not look like nanotesla (subject
 	// "earth-field" or "chi2", see Estimate.Implausible).
@@ -168,4 +169,4 @@ const (
 
 // AlarmKinds lists every alarm kind the service raises; the alarms API
 // refuses any other kind.
-var AlarmKinds = []string{AlarmOverCurrent, AlarmImbalance, AlarmStep, AlarmSilent, AlarmStuck, AlarmDegraded, AlarmImplausible, AlarmDataLost}
+var AlarmKinds = []string{AlarmOverCurrent, AlarmImbalance, AlarmStep, AlarmSilent, AlarmStuck, AlarmSaturated, AlarmDegraded, AlarmImplausible, AlarmDataLost}
