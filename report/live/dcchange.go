@@ -221,14 +221,15 @@ func mad(v []float64) float64 {
 }
 
 // currentAlarms raises conductor i's over-current and step alarms for a
-// window whose mean current is cur, and keeps the current the next
+// window whose mean current is cur, and keeps the currents the next
 // window's step is judged from. Without a change in the window (split
-// nil) these judge the mean, against the previous window's current. With
-// one they judge the levels the current went through: the previous
-// window's, the part before the change, the part after it (and the mean):
-// over-current on the largest, the step on the largest change between
-// successive levels, and the next window is compared with the part after
-// the change, so that a step anywhere in a window is judged whole, once.
+// nil) these judge the mean, against the previous window's, as always.
+// With one they judge the levels the current went through as well: the
+// part before the change, against the level the previous window ended
+// at (its part after a change, else its mean), and the part after the
+// change against the part before. Over-current takes the largest level,
+// the step alarm the largest change, so a step anywhere in a window is
+// judged whole.
 func (p *processor) currentAlarms(w *window, i int, name string, cur float64, split *windowSplit) []Alarm {
 	a := p.asset
 	var out []Alarm
@@ -245,6 +246,10 @@ func (p *processor) currentAlarms(w *window, i int, name string, cur float64, sp
 			fmt.Sprintf("conductor %s carries %.4g A%s, above %.4g A", name, peak, what, t)))
 	}
 	prev, ok := p.prev[name]
+	end, okEnd := p.prevEnd[name]
+	if !okEnd {
+		end = prev
+	}
 	if a.Alarms.Step > 0 {
 		var step float64
 		var msg string
@@ -256,8 +261,8 @@ func (p *processor) currentAlarms(w *window, i int, name string, cur float64, sp
 			if d := af - b; math.Abs(d) > math.Abs(step) {
 				step, msg = d, fmt.Sprintf("conductor %s changed by %.4g A within the window, from %.4g A to %.4g A at %.3f s", name, d, b, af, split.at)
 			}
-			if d := b - prev; ok && math.Abs(d) > math.Abs(step) {
-				step, msg = d, fmt.Sprintf("conductor %s changed by %.4g A from the previous window to the start of this one (%.4g A until %.3f s, then %.4g A)", name, d, b, split.at, af)
+			if d := b - end; ok && math.Abs(d) > math.Abs(step) {
+				step, msg = d, fmt.Sprintf("conductor %s changed by %.4g A from the end of the previous window to the start of this one (%.4g A until %.3f s, then %.4g A)", name, d, b, split.at, af)
 			}
 		}
 		if msg != "" && math.Abs(step) > a.Alarms.Step {
@@ -266,7 +271,12 @@ func (p *processor) currentAlarms(w *window, i int, name string, cur float64, sp
 	}
 	p.prev[name] = cur
 	if split != nil {
-		p.prev[name] = split.after.Current[i]
+		if p.prevEnd == nil {
+			p.prevEnd = map[string]float64{}
+		}
+		p.prevEnd[name] = split.after.Current[i]
+	} else {
+		delete(p.prevEnd, name)
 	}
 	return out
 }

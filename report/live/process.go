@@ -24,6 +24,10 @@ type processor struct {
 	// covariance (geometryShifts), nil for a geometry taken as exact.
 	shifts []geometryShift
 	prev   map[string]float64 // previous window's currents (step alarm)
+	// prevEnd holds the current a previous window that held a change
+	// ended at (its part after the change; currentAlarms), not
+	// checkpointed: after a restart prev stands for it.
+	prevEnd map[string]float64
 	// frozen holds, per sensor, the reading it repeated on every axis
 	// through the previous window (stuckAxis).
 	frozen map[string][3]float64
@@ -424,6 +428,10 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 	for k, v := range p.prev {
 		prev[k] = v
 	}
+	prevEnd := make(map[string]float64, len(p.prevEnd))
+	for k, v := range p.prevEnd {
+		prevEnd[k] = v
+	}
 	// The held geometry's error, in quadrature with the window's noise.
 	gCur, gPhase := p.geometrySigmas(&r.in, len(p.names))
 	split := p.windowChange(r)
@@ -487,7 +495,7 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 		// rather than stopping the asset. The step alarm's previous
 		// currents are left as they were before the window.
 		p.solveErr = fmt.Errorf("the estimate has a non-finite %s", what)
-		p.prev = prev
+		p.prev, p.prevEnd = prev, prevEnd
 		return p.failed(w, e, r.alarms, fmt.Sprintf("no estimate: the window's estimate came out with a non-finite %s (see the log)", what))
 	}
 	return e, alarms
