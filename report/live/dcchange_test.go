@@ -264,3 +264,28 @@ func TestDCSpikesAtDifferentTimesLeftOut(t *testing.T) {
 		}
 	}
 }
+
+// A ramp still raises the step alarm between windows whose means differ
+// by more than the threshold, as before the change test: simulated truth,
+// 0 to 100 A over 10 windows of 2 s (10 A a window, each window's
+// readings changing within it) with the step alarm at 8 A: windows 1 to 9
+// each raise one step alarm of about 10 A (the means' difference), none
+// of them more than 10.5 A.
+func TestStepAlarmOnRampAsBefore(t *testing.T) {
+	const rate, n = 50.0, 100
+	t0 := 1764650000.0
+	a, p := fenwickDC(t, 8)
+	rng := rand.New(rand.NewPCG(5, 55))
+	cur := func(t float64) []float64 { v := 5 * (t - t0); return []float64{v, -v} }
+	for k := range 10 {
+		w, _ := synthDCWindowVarying(a, cur, steadyEarth, t0+2*float64(k), rate, n, a.Noise, rng)
+		_, alarms := p.solve(w, p.reduce(w))
+		al, ok := alarmFor(alarms, AlarmStep, "go")
+		if ok != (k > 0) {
+			t.Errorf("window %d: step alarm %v, want %v (%+v)", k, ok, k > 0, alarms)
+		}
+		if ok && !(al.Value > 9.5 && al.Value < 10.5) {
+			t.Errorf("window %d: step %.4g A, want about 10 A: %s", k, al.Value, al.Message)
+		}
+	}
+}
