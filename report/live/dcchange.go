@@ -223,13 +223,17 @@ func mad(v []float64) float64 {
 // currentAlarms raises conductor i's over-current and step alarms for a
 // window whose mean current is cur, and keeps the currents the next
 // window's step is judged from. Without a change in the window (split
-// nil) these judge the mean, against the previous window's, as always.
-// With one they judge the levels the current went through as well: the
-// part before the change, against the level the previous window ended
-// at (its part after a change, else its mean), and the part after the
-// change against the part before. Over-current takes the largest level,
-// the step alarm the largest change, so a step anywhere in a window is
-// judged whole.
+// nil) these judge the mean, against the previous window's, as always,
+// unless the previous window held a change: that change was judged
+// whole there, and the mean is compared with the level it ended at (its
+// part after the change), so that one step raises one alarm. With a
+// change in the window they judge the levels the current went through as
+// well: the mean against the previous window's (a ramp, changing within
+// every window, is judged as before), the part before the change against
+// the level the previous window ended at, and the part after the change
+// against the part before. Over-current takes the largest level, the
+// step alarm the largest change, so a step anywhere in a window is judged
+// whole.
 func (p *processor) currentAlarms(w *window, i int, name string, cur float64, split *windowSplit) []Alarm {
 	a := p.asset
 	var out []Alarm
@@ -253,7 +257,12 @@ func (p *processor) currentAlarms(w *window, i int, name string, cur float64, sp
 	if a.Alarms.Step > 0 {
 		var step float64
 		var msg string
-		if ok {
+		switch {
+		case ok && okEnd && split == nil:
+			// The previous window's change was judged whole there: a
+			// steady window after it is compared with where it ended.
+			step, msg = cur-end, fmt.Sprintf("conductor %s changed by %.4g A since the end of the previous window (%.4g A after its change)", name, cur-end, end)
+		case ok:
 			step, msg = cur-prev, fmt.Sprintf("conductor %s changed by %.4g A since the previous window", name, cur-prev)
 		}
 		if split != nil {

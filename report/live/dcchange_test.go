@@ -165,18 +165,22 @@ func TestDCWindowKeepsChangeSeenByAllSensors(t *testing.T) {
 // Reviewer's case (rv13a finding 3): with the step alarm at 1.5 A, a 2 A
 // switch falling inside a window read as two changes under the threshold
 // (the window's mean halfway between the levels) and raised nothing.
-// Simulated truth: 20 A (go; the return its negative) switched off half-way
-// into the second of three 2 s windows and the step alarm at 15 A: the
-// old code saw 10 A then 10 A, each under the threshold; exactly one step alarm
-// must be raised, in the window holding the switch, of the whole step
-// (within 0.5 A, some 20 times the parts' sigma), and none in the window
-// after it. A switch on a window's
-// edge still raises one.
+// Simulated truth: 20 A (go; the return its negative) switched off
+// half-way into the second of three 2 s windows and the step alarm at
+// 15 A: the old code saw 10 A then 10 A, each under the threshold;
+// exactly one step alarm must be raised, in the window holding the
+// switch, of the whole step (within 0.5 A, some 20 times the parts'
+// sigma), and none in the window after it. A switch on a window's edge
+// still raises one; so does a switch three quarters into a window with
+// the alarm at 12 A, whose following window's mean differs from the
+// switch window's by 15 A: that window is compared with where the switch
+// window ended, not alarmed again.
 func TestStepInsideWindowRaisesOneAlarm(t *testing.T) {
 	const rate, n = 50.0, 100
 	t0 := 1764650000.0
-	for _, at := range []float64{3.0, 2.0} {
-		a, p := fenwickDC(t, 15)
+	for _, tc := range []struct{ at, step float64 }{{3.0, 15}, {2.0, 15}, {3.5, 12}} {
+		at := tc.at
+		a, p := fenwickDC(t, tc.step)
 		rng := rand.New(rand.NewPCG(13, uint64(at*10)))
 		cur := func(t float64) []float64 {
 			if t < t0+at {
