@@ -198,12 +198,17 @@
 // conductors' current phasors| above max_imbalance, each taken along the
 // first balance conductor's direction: go and return should
 // cancel; a difference is current leaking to earth), step (change between
-// consecutive windows above step), silent (no samples from a sensor in a
+// consecutive windows, or within a DC window that holds a change, above
+// step), silent (no samples from a sensor in a
 // window; with no subject, no data from any sensor for silent_after of
 // wall time, once per silence: dated from the broker's time of the last
 // stored batch, and kept in the checkpoint for a successor), stuck (one value
-// repeated on an axis for a whole window), degraded (reduced chi-square
-// above max_chi2, or the solve failed), implausible (readings that do not
+// repeated on an axis for a whole window while the sensor's other axes
+// show a noise that makes so long a run unlikely, or one reading on every
+// axis through two windows running), saturated (a sensor read within a
+// margin of its stated range_nt on an axis), degraded (reduced chi-square
+// above max_chi2, beyond what a commissioned geometry's error adds, or
+// the solve failed), implausible (readings that do not
 // look like nanotesla: the Earth's field outside earth_field, subject
 // "earth-field", or with noise given a chi-square far below its degrees
 // of freedom, subject "chi2"; the estimate's quality is then

@@ -39,11 +39,20 @@ type Estimate struct {
 	// sigmas too). Absent on other windows, whose sigmas come from the
 	// stated noise alone.
 	SigmaScale float64 `json:"sigma_scale,omitempty"`
+	// Chi2Geometry is set on a window solved with a commissioned geometry
+	// whose reduced chi-square is above alarms.max_chi2: the chi-square
+	// the geometry's stated error is expected to add to the window's
+	// (geometryChi2). The window is degraded only when Chi2 is above
+	// max_chi2 times DOF plus this: a geometry commissioned at a small
+	// current misses a window at a large one by more than its noise,
+	// which its sigmas already carry (current_sigma_geometry_a).
+	// Recommissioning at the larger current makes it smaller.
+	Chi2Geometry float64 `json:"chi2_geometry,omitempty"`
 	// Implausible lists why the window's readings look implausible (the
 	// messages of its implausible alarms); absent when they do not.
 	Implausible []string `json:"implausible,omitempty"`
 	// Sensors used, samples used, and the sensors left out or short of
-	// samples with why: "silent", "stuck", "131 of 500 samples" (used, but
+	// samples with why: "silent", "stuck", "saturated", "131 of 500 samples" (used, but
 	// more than one sample short of what its rate puts in a window), "2 of
 	// 500 samples, too few to use", or a sine-fit error (AC).
 	Sensors int               `json:"sensors"`
@@ -56,6 +65,12 @@ type Estimate struct {
 	// sensor's window (see acSpikes). Absent when none were. Samples
 	// counts the readings used, without them.
 	Spikes map[string]int `json:"spikes,omitempty"`
+	// Change is set on a DC window whose current changed within it (a
+	// switch, a surge, a dip): the window's Conductors give its mean
+	// current, what flowed on average; Change the time the window is best
+	// split at and the currents of its two parts (see windowChange).
+	// Absent on a steady window.
+	Change *WindowChange `json:"change,omitempty"`
 	// DataLost is set on the first window after data that the broker
 	// removed (data_retention, data_max_bytes) before the worker read it:
 	// what was lost (the message of the asset's data-lost alarm).
@@ -94,6 +109,31 @@ type ConductorEstimate struct {
 	PhaseSigmaGeometry *float64 `json:"phase_sigma_geometry_deg,omitempty"`
 }
 
+// WindowChange is a change of current within a DC window.
+type WindowChange struct {
+	// At is the time, s on the sensor clock, at which the window's
+	// readings are best split in two: the change's time, to within the
+	// readings' noise (a brief dip or surge inside the window is split at
+	// one of its ends).
+	At float64 `json:"at"`
+	// Sigmas is the largest difference between a conductor's currents in
+	// the two parts, in standard deviations of that difference (above 6).
+	Sigmas     float64       `json:"sigmas"`
+	Conductors []ChangeLevel `json:"conductors"`
+}
+
+// ChangeLevel is one conductor's current before and after a window's
+// change, A, each solved from the mean readings of its part, with
+// one-sigma errors from the readings' noise (widened by the part's fit as
+// a degraded window's; without the commissioned geometry's share).
+type ChangeLevel struct {
+	Name        string  `json:"name"`
+	Before      float64 `json:"current_before_a"`
+	BeforeSigma float64 `json:"current_before_sigma_a"`
+	After       float64 `json:"current_after_a"`
+	AfterSigma  float64 `json:"current_after_sigma_a"`
+}
+
 // Alarm is published on uc.alarm.<asset>.<kind>.
 type Alarm struct {
 	Asset  string  `json:"asset"`
@@ -116,9 +156,10 @@ type Alarm struct {
 const (
 	AlarmOverCurrent = "over-current" // |I| above alarms.max_current
 	AlarmImbalance   = "imbalance"    // go/return currents do not cancel: leakage
-	AlarmStep        = "step"         // current changed by more than alarms.step
+	AlarmStep        = "step"         // current changed by more than alarms.step (between windows or within one)
 	AlarmSilent      = "silent"       // sensor sent nothing in the window
 	AlarmStuck       = "stuck"        // sensor repeated one value on an axis
+	AlarmSaturated   = "saturated"    // sensor read at its range (range_nt) on an axis
 	AlarmDegraded    = "degraded"     // reduced chi-square above alarms.max_chi2, or the solve failed
 	// AlarmImplausible: the readings do not look like nanotesla (subject
 	// "earth-field" or "chi2", see Estimate.Implausible).
@@ -130,4 +171,4 @@ const (
 
 // AlarmKinds lists every alarm kind the service raises; the alarms API
 // refuses any other kind.
-var AlarmKinds = []string{AlarmOverCurrent, AlarmImbalance, AlarmStep, AlarmSilent, AlarmStuck, AlarmDegraded, AlarmImplausible, AlarmDataLost}
+var AlarmKinds = []string{AlarmOverCurrent, AlarmImbalance, AlarmStep, AlarmSilent, AlarmStuck, AlarmSaturated, AlarmDegraded, AlarmImplausible, AlarmDataLost}

@@ -24,6 +24,13 @@ type processor struct {
 	// covariance (geometryShifts), nil for a geometry taken as exact.
 	shifts []geometryShift
 	prev   map[string]float64 // previous window's currents (step alarm)
+	// prevEnd holds the current a previous window that held a change
+	// ended at (its part after the change; currentAlarms), not
+	// checkpointed: after a restart prev stands for it.
+	prevEnd map[string]float64
+	// frozen holds, per sensor, the reading it repeated on every axis
+	// through the previous window (stuckAxis).
+	frozen map[string][3]float64
 	worker string
 	// revision is the asset's read revision, copied into every estimate
 	// and alarm; the worker keeps it equal to its checkpoint's.
@@ -86,6 +93,9 @@ type reduced struct {
 	// mean (despikeDC) or an AC window's demodulation (acSpikes, despikeACWindow) as
 	// spikes; nil when none.
 	spikes map[string]int
+	// dc are a DC window's usable sensors' calibrated readings, despiked,
+	// for its change test (windowChange); nil for AC.
+	dc []sensorData
 }
 
 // addSpikes counts k readings of sensor name left out as spikes.
@@ -118,39 +128,6 @@ const dcDespikeHalf = 50
 // despiked: the reading and dcDespikeHalf neighbours on one side, so that
 // every reading is judged against at least 51.
 const dcDespikeMin = dcDespikeHalf + 1
-
-// despikeDC leaves out of one sensor's DC window the readings that are
-// spikes (a logger glitch, a bit error: one reading of 1e6 nT among 600
-// moved the window mean by 1700 nT and raised over-current and step
-// alarms from a window whose truth was 0 A), found as locate finds spikes
-// in a base record, which like a fixed sensor is a record in time at one
-// place: each reading against the running median of its neighbours and
-// their median absolute deviation (the Hampel filter,
-// calibrate.DespikeBaseColumns), at dcSpikeSigmas over dcDespikeHalf
-// neighbours each side. It returns the number of readings left out.
-func despikeDC(d *sensorData) (int, error) {
-	n := len(d.t)
-	if n < dcDespikeMin {
-		return 0, nil
-	}
-	sp, err := calibrate.DespikeBaseColumns(d.t, [3][]float64{d.bx, d.by, d.bz}, &calibrate.DespikeSettings{Threshold: dcSpikeSigmas, HalfWidth: dcDespikeHalf})
-	if err != nil || sp == nil {
-		return 0, err
-	}
-	drop := make([]bool, n)
-	for _, i := range sp.Rows {
-		drop[i] = true
-	}
-	t := make([]float64, 0, n-len(sp.Rows))
-	bx, by, bz := make([]float64, 0, cap(t)), make([]float64, 0, cap(t)), make([]float64, 0, cap(t))
-	for i := range n {
-		if !drop[i] {
-			t, bx, by, bz = append(t, d.t[i]), append(bx, d.bx[i]), append(by, d.by[i]), append(bz, d.bz[i])
-		}
-	}
-	d.t, d.bx, d.by, d.bz = t, bx, by, bz
-	return len(sp.Rows), nil
-}
 
 // minSamples is the fewest samples a sensor needs in a window to be used:
 // a three-parameter sine fit needs more than three (IEEE Std 1057).
@@ -198,7 +175,13 @@ func (p *processor) reduce(w *window) *reduced {
 			r.missing[s.Name] = sampleCount(n, exp) + ", too few to use"
 			continue
 		}
-		if axis, v := stuckAxis(&sr); axis != "" {
+		if axis, v := saturatedAxis(a, &s, &sr); axis != "" {
+			r.missing[s.Name] = "saturated"
+			r.alarms = append(r.alarms, p.alarm(w, AlarmSaturated, s.Name, v, s.Range,
+				fmt.Sprintf("sensor %s read %.8g nT on axis %s, at its range of ±%.8g nT: its readings are clipped and left out", s.Name, v, axis, s.Range)))
+			continue
+		}
+		if axis, v := p.stuckAxis(s.Name, &sr); axis != "" {
 			r.missing[s.Name] = "stuck"
 			r.alarms = append(r.alarms, p.alarm(w, AlarmStuck, s.Name, v, 0,
 				fmt.Sprintf("sensor %s repeated one value on axis %s for %d samples", s.Name, axis, n)))
@@ -220,15 +203,10 @@ func (p *processor) reduce(w *window) *reduced {
 		if c := p.cals[i]; c != nil {
 			c.ApplyColumns(d.bx, d.by, d.bz)
 		}
-		if a.Mode != "ac" {
-			if k, err := despikeDC(&d); err != nil {
-				r.missing[s.Name] = err.Error()
-				continue
-			} else if k > 0 {
-				r.addSpikes(s.Name, k)
-			}
-		}
 		use = append(use, d)
+	}
+	if a.Mode != "ac" {
+		use = p.despikeDC(use, r)
 	}
 	if a.Mode == "ac" && len(use) > 0 {
 		// Despiked at the site's frequency first, so that a spike does
@@ -386,24 +364,6 @@ func sampleCount(n, exp int) string {
 	return fmt.Sprintf("%d samples", n)
 }
 
-// stuckAxis returns the first axis that repeats one value through the
-// window, and that value, or "" when none does.
-func stuckAxis(s *series) (string, float64) {
-	for k, col := range [][]float64{s.Bx, s.By, s.Bz} {
-		same := true
-		for _, v := range col[1:] {
-			if v != col[0] {
-				same = false
-				break
-			}
-		}
-		if same {
-			return [3]string{"x", "y", "z"}[k], col[0]
-		}
-	}
-	return "", 0
-}
-
 func mean(v []float64) float64 {
 	var s float64
 	for _, x := range v {
@@ -457,7 +417,14 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 	// scale widens a degraded window's sigmas by its misfit (see
 	// Estimate.SigmaScale).
 	scale := 1.0
-	if out.DOF > 0 && out.Chi2/float64(out.DOF) > a.Alarms.MaxChi2 {
+	degraded := out.DOF > 0 && out.Chi2/float64(out.DOF) > a.Alarms.MaxChi2
+	if degraded && len(p.shifts) > 0 {
+		// The commissioned geometry's error is in the sigmas: the
+		// misfit it is expected to give is no sign of a poor fit.
+		e.Chi2Geometry = p.geometryChi2(&r.in, out.Chi2)
+		degraded = out.Chi2/(float64(out.DOF)+e.Chi2Geometry) > a.Alarms.MaxChi2
+	}
+	if degraded {
 		e.Quality = "degraded"
 		scale = math.Sqrt(out.Chi2 / float64(out.DOF))
 		e.SigmaScale = scale
@@ -479,8 +446,21 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 	for k, v := range p.prev {
 		prev[k] = v
 	}
+	prevEnd := make(map[string]float64, len(p.prevEnd))
+	for k, v := range p.prevEnd {
+		prevEnd[k] = v
+	}
 	// The held geometry's error, in quadrature with the window's noise.
 	gCur, gPhase := p.geometrySigmas(&r.in, len(p.names))
+	split := p.windowChange(r)
+	if split != nil {
+		e.Change = &WindowChange{At: split.at, Sigmas: split.sigmas}
+		for i, name := range p.names {
+			e.Change.Conductors = append(e.Change.Conductors, ChangeLevel{Name: name,
+				Before: split.before.Current[i], BeforeSigma: split.before.CurrentSigma[i],
+				After: split.after.Current[i], AfterSigma: split.after.CurrentSigma[i]})
+		}
+	}
 	byName := map[string]complex128{}
 	for i, name := range p.names {
 		c := ConductorEstimate{Name: name, Current: out.Current[i], CurrentSigma: out.CurrentSigma[i] * scale}
@@ -501,15 +481,7 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 		}
 		e.Conductors = append(e.Conductors, c)
 		byName[name] = complex(c.Current*math.Cos(ph*math.Pi/180), c.Current*math.Sin(ph*math.Pi/180))
-		if t := a.Alarms.MaxCurrent; t > 0 && math.Abs(c.Current) > t {
-			alarms = append(alarms, p.alarm(w, AlarmOverCurrent, name, c.Current, t,
-				fmt.Sprintf("conductor %s carries %.4g A, above %.4g A", name, c.Current, t)))
-		}
-		if prev, ok := p.prev[name]; ok && a.Alarms.Step > 0 && math.Abs(c.Current-prev) > a.Alarms.Step {
-			alarms = append(alarms, p.alarm(w, AlarmStep, name, c.Current-prev, a.Alarms.Step,
-				fmt.Sprintf("conductor %s changed by %.4g A since the previous window", name, c.Current-prev)))
-		}
-		p.prev[name] = c.Current
+		alarms = append(alarms, p.currentAlarms(w, i, name, c.Current, split)...)
 	}
 	if len(a.Alarms.Balance) > 1 && a.Alarms.MaxImbalance > 0 {
 		// The currents are summed along one direction, the first balance
@@ -541,7 +513,7 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 		// rather than stopping the asset. The step alarm's previous
 		// currents are left as they were before the window.
 		p.solveErr = fmt.Errorf("the estimate has a non-finite %s", what)
-		p.prev = prev
+		p.prev, p.prevEnd = prev, prevEnd
 		return p.failed(w, e, r.alarms, fmt.Sprintf("no estimate: the window's estimate came out with a non-finite %s (see the log)", what))
 	}
 	return e, alarms
@@ -554,6 +526,7 @@ func (p *processor) failed(w *window, e *Estimate, alarms []Alarm, msg string) (
 	e.Quality = "failed"
 	e.Conductors = []ConductorEstimate{}
 	e.RMS, e.Chi2, e.DOF, e.Background, e.SigmaScale, e.Implausible = 0, 0, 0, nil, 0, nil
+	e.Chi2Geometry, e.Change = 0, nil
 	out := append([]Alarm(nil), alarms...)
 	return e, append(out, p.alarm(w, AlarmDegraded, "", 0, 0, msg))
 }

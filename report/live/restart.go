@@ -250,6 +250,7 @@ func (w *assetWorker) applyRestart(req *RestartStatus, rev uint64) error {
 		w.asm = w.svc.newAssetAssembler(w.asset)
 		w.asm.lastSeq = req.Seq - 1
 		w.proc.prev = map[string]float64{}
+		w.proc.prevEnd, w.proc.frozen = nil, nil
 		w.pending, w.pendDur = nil, 0
 		w.ck = checkpoint{Start: req.Start, Revision: w.ck.Revision + 1, Restart: req.ID}
 		w.proc.revision = w.ck.Revision

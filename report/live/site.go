@@ -183,6 +183,10 @@ type SensorConfig struct {
 	Orientation [3]float64 `toml:"orientation"`
 	// Calibration is a calibration file written by "undercurrent calibrate".
 	Calibration string `toml:"calibration"`
+	// Range is the sensor's range per axis, nT (0: not stated): a window
+	// in which it reads within saturationMargin of +-Range on an axis is
+	// clipped there, and the sensor is left out of it (saturatedAxis).
+	Range float64 `toml:"range_nt"`
 }
 
 // ConductorConfig is one [[asset.conductor]].
@@ -511,6 +515,9 @@ func (a *AssetConfig) validate(dir string) error {
 			return fmt.Errorf("sensor %q listed twice", s.Name)
 		}
 		names[s.Name] = true
+		if !(s.Range >= 0) || math.IsInf(s.Range, 0) {
+			return fmt.Errorf("sensor %q: range_nt %v: want the sensor's range in nT, above 0 (or 0: not stated)", s.Name, s.Range)
+		}
 		if s.Calibration != "" && !filepath.IsAbs(s.Calibration) {
 			s.Calibration = filepath.Join(dir, s.Calibration)
 		}

@@ -1,0 +1,291 @@
+package live
+
+import (
+	"fmt"
+	"math"
+	"sort"
+)
+
+// A DC window's estimate is the current of its readings' mean. When the
+// current changes within the window (a rectifier switched, a train
+// drawing current, a surge) that mean is a current that flowed on average
+// but at no moment, and a step split by a window edge reads as two
+// half-size changes in consecutive windows, each of which can stay under
+// the step alarm's threshold. windowChange finds such a change: the time
+// at which the window is best split in two (the largest change of the
+// sensors' mean fields, less the part common to all sensors, which the
+// background takes, against each sensor's own noise), the currents solved
+// from each part's mean readings, and whether they differ by more than
+// changeSigmas of their noise. The estimate then shows both parts'
+// currents (Estimate.Change), and the step and over-current alarms judge
+// them as well as the window's mean.
+
+// changeSigmas is how many standard deviations apart the currents solved
+// from the two parts of a DC window must be for the window to hold a
+// change. The split is the best of many, so the difference at it is a
+// little larger than a Gaussian deviate; at 6 sigma a two-sided Gaussian
+// tail is 2e-9.
+const changeSigmas = 6
+
+// changeMaxSplits bounds the number of split times tried in a window.
+const changeMaxSplits = 400
+
+// changeMinPart is the fewest readings each sensor must have on either
+// side of a split.
+const changeMinPart = 2
+
+// windowSplit is a DC window split at a time into two parts, each solved.
+type windowSplit struct {
+	at            float64
+	before, after *SolveOutput
+	// sigmas is the largest |after - before| over its sigma among the
+	// conductors.
+	sigmas float64
+}
+
+// windowChange returns the window's best split when the currents of its
+// two parts differ by more than changeSigmas, or nil. It needs the
+// despiked readings of at least two sensors (reduced.dc).
+func (p *processor) windowChange(r *reduced) *windowSplit {
+	if p.est == nil || len(r.dc) < 2 || len(r.dc) != len(r.used) {
+		return nil
+	}
+	type sensor struct {
+		t     []float64
+		cum   [3][]float64 // cumulative sums of the ENU field, cum[k][i] the sum of the first i
+		sigma float64      // one reading's noise per component, nT
+	}
+	ss := make([]sensor, len(r.dc))
+	var ref []float64 // split times: the densest sensor's
+	for k, d := range r.dc {
+		n := len(d.t)
+		if n < 2*changeMinPart {
+			return nil
+		}
+		R := p.rot[d.i]
+		s := sensor{t: d.t}
+		var diffs [3][]float64
+		prev := [3]float64{}
+		for c := range 3 {
+			s.cum[c] = make([]float64, n+1)
+		}
+		for i := range n {
+			b := [3]float64{d.bx[i], d.by[i], d.bz[i]}
+			var e [3]float64
+			for row := range 3 {
+				e[row] = R[row][0]*b[0] + R[row][1]*b[1] + R[row][2]*b[2]
+				s.cum[row][i+1] = s.cum[row][i] + e[row]
+				if i > 0 {
+					diffs[row] = append(diffs[row], e[row]-prev[row])
+				}
+			}
+			prev = e
+		}
+		// Each reading's noise: the median absolute deviation of the
+		// successive differences (robust to a step or a spike, and to a
+		// steady drift), 1.4826 MAD / sqrt 2 for Gaussian noise, the
+		// median over the axes; at least the stated noise.
+		var axes []float64
+		for c := range 3 {
+			axes = append(axes, 1.4826*mad(diffs[c])/math.Sqrt2)
+		}
+		sort.Float64s(axes)
+		s.sigma = math.Max(axes[1], p.asset.Noise)
+		if !(s.sigma > 0) {
+			return nil // readings without noise: nothing to judge a change against
+		}
+		ss[k] = s
+		if len(d.t) > len(ref) {
+			ref = d.t
+		}
+	}
+	// The split time maximising the non-uniform part of the change of
+	// the sensors' mean fields, each weighted by its variance.
+	step := max(1, len(ref)/changeMaxSplits)
+	bestT, bestAt := 0.0, math.NaN()
+	for i := changeMinPart; i <= len(ref)-changeMinPart; i += step {
+		at := ref[i]
+		ok := true
+		var sumW float64
+		var sumD [3]float64
+		ds := make([][3]float64, len(ss))
+		ws := make([]float64, len(ss))
+		for k, s := range ss {
+			n1 := sort.SearchFloat64s(s.t, at)
+			n := len(s.t)
+			if n1 < changeMinPart || n-n1 < changeMinPart {
+				ok = false
+				break
+			}
+			for c := range 3 {
+				ds[k][c] = (s.cum[c][n]-s.cum[c][n1])/float64(n-n1) - s.cum[c][n1]/float64(n1)
+			}
+			ws[k] = 1 / (s.sigma * s.sigma * (1/float64(n1) + 1/float64(n-n1)))
+			sumW += ws[k]
+			for c := range 3 {
+				sumD[c] += ws[k] * ds[k][c]
+			}
+		}
+		if !ok {
+			continue
+		}
+		var T float64
+		for k := range ss {
+			for c := range 3 {
+				x := ds[k][c] - sumD[c]/sumW
+				T += ws[k] * x * x
+			}
+		}
+		if T > bestT {
+			bestT, bestAt = T, at
+		}
+	}
+	if math.IsNaN(bestAt) {
+		return nil
+	}
+	part := func(before bool) (*SolveOutput, error) {
+		in := SolveInput{Points: r.in.Points}
+		for _, s := range ss {
+			n1 := sort.SearchFloat64s(s.t, bestAt)
+			lo, hi := 0, n1
+			if !before {
+				lo, hi = n1, len(s.t)
+			}
+			m := float64(hi - lo)
+			in.Fields = append(in.Fields, [3]float64{(s.cum[0][hi] - s.cum[0][lo]) / m, (s.cum[1][hi] - s.cum[1][lo]) / m, (s.cum[2][hi] - s.cum[2][lo]) / m})
+			in.Sigmas = append(in.Sigmas, s.sigma/math.Sqrt(m))
+		}
+		sorted := append([]float64(nil), in.Sigmas...)
+		sort.Float64s(sorted)
+		in.Sigma = sorted[len(sorted)/2]
+		out, err := p.est.Solve(&in)
+		if err == nil && (len(out.Current) != len(p.names) || len(out.CurrentSigma) != len(p.names) || nonFiniteOutput(out) != "") {
+			err = errChangeSolve
+		}
+		if err != nil {
+			return nil, err
+		}
+		// A part the model misses by more than its noise has its sigmas
+		// widened by its Birge ratio, as a degraded window's are.
+		if out.DOF > 0 && out.Chi2 > float64(out.DOF) {
+			f := math.Sqrt(out.Chi2 / float64(out.DOF))
+			for c := range out.CurrentSigma {
+				out.CurrentSigma[c] *= f
+			}
+		}
+		return out, nil
+	}
+	b, err := part(true)
+	if err != nil {
+		return nil
+	}
+	a, err := part(false)
+	if err != nil {
+		return nil
+	}
+	sp := &windowSplit{at: bestAt, before: b, after: a}
+	for c := range p.names {
+		s := math.Hypot(a.CurrentSigma[c], b.CurrentSigma[c])
+		if !(s > 0) {
+			continue
+		}
+		if z := math.Abs(a.Current[c]-b.Current[c]) / s; z > sp.sigmas {
+			sp.sigmas = z
+		}
+	}
+	if !(sp.sigmas > changeSigmas) {
+		return nil
+	}
+	return sp
+}
+
+type changeSolveError struct{}
+
+func (changeSolveError) Error() string { return "the split window's fit gave no usable currents" }
+
+var errChangeSolve = changeSolveError{}
+
+// mad is the median absolute deviation of v about its median (0 for none).
+func mad(v []float64) float64 {
+	if len(v) == 0 {
+		return 0
+	}
+	s := append([]float64(nil), v...)
+	sort.Float64s(s)
+	m := s[len(s)/2]
+	for i := range s {
+		s[i] = math.Abs(s[i] - m)
+	}
+	sort.Float64s(s)
+	return s[len(s)/2]
+}
+
+// currentAlarms raises conductor i's over-current and step alarms for a
+// window whose mean current is cur, and keeps the currents the next
+// window's step is judged from. Without a change in the window (split
+// nil) these judge the mean, against the previous window's, as always,
+// unless the previous window held a change: that change was judged
+// whole there, and the mean is compared with the level it ended at (its
+// part after the change), so that one step raises one alarm. With a
+// change in the window they judge the levels the current went through as
+// well: the mean against the previous window's (a ramp, changing within
+// every window, is judged as before), the part before the change against
+// the level the previous window ended at, and the part after the change
+// against the part before. Over-current takes the largest level, the
+// step alarm the largest change, so a step anywhere in a window is judged
+// whole.
+func (p *processor) currentAlarms(w *window, i int, name string, cur float64, split *windowSplit) []Alarm {
+	a := p.asset
+	var out []Alarm
+	peak, what := cur, ""
+	if split != nil {
+		for _, v := range []float64{split.before.Current[i], split.after.Current[i]} {
+			if math.Abs(v) > math.Abs(peak) {
+				peak, what = v, fmt.Sprintf(" for part of the window (%.4g A on average)", cur)
+			}
+		}
+	}
+	if t := a.Alarms.MaxCurrent; t > 0 && math.Abs(peak) > t {
+		out = append(out, p.alarm(w, AlarmOverCurrent, name, peak, t,
+			fmt.Sprintf("conductor %s carries %.4g A%s, above %.4g A", name, peak, what, t)))
+	}
+	prev, ok := p.prev[name]
+	end, okEnd := p.prevEnd[name]
+	if !okEnd {
+		end = prev
+	}
+	if a.Alarms.Step > 0 {
+		var step float64
+		var msg string
+		switch {
+		case ok && okEnd && split == nil:
+			// The previous window's change was judged whole there: a
+			// steady window after it is compared with where it ended.
+			step, msg = cur-end, fmt.Sprintf("conductor %s changed by %.4g A since the end of the previous window (%.4g A after its change)", name, cur-end, end)
+		case ok:
+			step, msg = cur-prev, fmt.Sprintf("conductor %s changed by %.4g A since the previous window", name, cur-prev)
+		}
+		if split != nil {
+			b, af := split.before.Current[i], split.after.Current[i]
+			if d := af - b; math.Abs(d) > math.Abs(step) {
+				step, msg = d, fmt.Sprintf("conductor %s changed by %.4g A within the window, from %.4g A to %.4g A at %.3f s", name, d, b, af, split.at)
+			}
+			if d := b - end; ok && math.Abs(d) > math.Abs(step) {
+				step, msg = d, fmt.Sprintf("conductor %s changed by %.4g A from the end of the previous window to the start of this one (%.4g A until %.3f s, then %.4g A)", name, d, b, split.at, af)
+			}
+		}
+		if msg != "" && math.Abs(step) > a.Alarms.Step {
+			out = append(out, p.alarm(w, AlarmStep, name, step, a.Alarms.Step, msg))
+		}
+	}
+	p.prev[name] = cur
+	if split != nil {
+		if p.prevEnd == nil {
+			p.prevEnd = map[string]float64{}
+		}
+		p.prevEnd[name] = split.after.Current[i]
+	} else {
+		delete(p.prevEnd, name)
+	}
+	return out
+}
