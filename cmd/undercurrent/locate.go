@@ -865,6 +865,15 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			sv.baseCheck.origin = &[2]float64{org.Lat, org.Lon}
 		}
 	}
+	// An observatory's record from far away does not hold the survey's
+	// own variation (basefield.go baseFarWarning).
+	if base != nil {
+		if org := doc.Frame.Origin; org != nil {
+			if w := baseFarWarning(o.base, base, &[2]float64{org.Lat, org.Lon}); w != "" {
+				sv.alerts = append(sv.alerts, w)
+			}
+		}
+	}
 	// Several logs: the groups in time order, not the order of the files
 	// given (loggroups.go).
 	if w := orderGroupsByTime(sv, logs); w != "" {
