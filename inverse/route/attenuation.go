@@ -20,7 +20,9 @@ import (
 // its sigma), the intervals are tested in the logarithm of the current,
 // where an exponential fall is a straight line and a step of a share f is
 // a change of ln(1 - f); the steps found are sized as before. The rate is
-// then reported as information, per cent and dB per km.
+// reported as information, per cent and dB per km, wherever an exponential
+// with a level of its own between the steps reported fits the route (the
+// steps then found in current as before).
 
 // attFallMin is the least fall across the route, in the logarithm of the
 // current (about 10%), for which the intervals are tested in log current.
@@ -143,6 +145,11 @@ func useLogTrend(u []*Placed, k float64) bool {
 	return chi*float64(len(u)-2) < lin
 }
 
+// attMinStations is the fewest usable stations for which the rate is
+// reported: fewer fix an exponential too poorly to be worth a figure (a
+// tee's branch of five stations read a rise of 22000 ± 19000% per km).
+const attMinStations = 8
+
 // attChiMax is the largest chi-square per degree of freedom of the
 // exponential fitted to the whole route for which the intervals are tested
 // in log current: the stations' sigmas are already widened by the
@@ -154,13 +161,25 @@ const attChiMax = 16
 
 // attenuationFinding reports the rate at which the current falls (or
 // rises) along the route, fitted in log current with a level of its own
-// between the steps found (isStep), as information.
+// between the steps found (isStep), as information, when the fit holds
+// (chi-square per degree of freedom at most attChiMax) and the fall is at
+// least attFallMin across the route and beyond StepK of its sigma.
 func attenuationFinding(u []*Placed, isStep []bool, set *Settings) (Finding, bool) {
-	b, sb, ok := attenuation(u, isStep)
-	if !ok || !(math.Abs(b) > set.stepK()*sb) {
+	b, sb, chi, ok := attenuationChi(u, isStep)
+	span := u[len(u)-1].Chainage - u[0].Chainage
+	if !ok || !(math.Abs(b) > set.stepK()*sb) || !(math.Abs(b)*span >= attFallMin) || !(chi <= attChiMax) {
 		return Finding{}, false
 	}
-	a, sa := -b*1000, sb*1000 // per km, of the logarithm
+	if len(u) < attMinStations {
+		return Finding{}, false
+	}
+	// Per km on a route of 500 m or more, else per 100 m: a short
+	// route's rate taken to a km would be a guess.
+	per, unit := 1000.0, "km"
+	if span < 500 {
+		per, unit = 100, "100 m"
+	}
+	a, sa := -b*per, sb*per // per km (or 100 m), of the logarithm
 	pct := 100 * (1 - math.Exp(-a))
 	spct := 100 * math.Exp(-a) * sa
 	db := 20 / math.Ln10 * a // current ratio in dB
@@ -189,11 +208,11 @@ func attenuationFinding(u []*Placed, isStep []bool, set *Settings) (Finding, boo
 		From:     first.Chainage, To: last.Chainage,
 		Position: mid(first.Point, last.Point),
 		Keys:     []string{first.Key, last.Key},
-		Message: fmt.Sprintf("the current %s steadily along the route, by %s%% per km (%s dB per km, the current's ratio) from %s to %s, fitted as an exponential%s: %s",
-			verb, pm(math.Abs(pct), spct), pm(math.Abs(db), sdb), first.Key, last.Key, steps, what),
+		Message: fmt.Sprintf("the current %s steadily along the route, by %s%% per %s (%s dB per %s, the current's ratio) from %s to %s, fitted as an exponential%s: %s",
+			verb, pm(math.Abs(pct), spct), unit, pm(math.Abs(db), sdb), unit, first.Key, last.Key, steps, what),
 		Values: []Value{
-			{Name: "attenuation", Value: pct, Sigma: spct, Unit: "%/km"},
-			{Name: "attenuation (dB)", Value: db, Sigma: sdb, Unit: "dB/km"},
+			{Name: "attenuation", Value: pct, Sigma: spct, Unit: "%/" + unit},
+			{Name: "attenuation (dB)", Value: db, Sigma: sdb, Unit: "dB/" + unit},
 		},
 	}, true
 }

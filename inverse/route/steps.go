@@ -124,8 +124,9 @@ func steps(ps []Placed, set *Settings, tau, widen float64) (out []Finding, notes
 				d = lin
 			}
 			f, n := stepFindings(u, own(u, orig), d, set, tau, bs)
-			if logTrend {
-				// A level of its own between the steps reported, not
+			if set.trendWindow() > 0 {
+				// The rate of a steady fall, with a level of its own
+				// between the steps reported, not
 				// between intervals flagged and then not kept.
 				key := map[string]int{}
 				for _, x := range f {
@@ -582,7 +583,7 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64, bs 
 			if !(math.Abs(size) > set.stepK()*sigma) {
 				sized = fmt.Sprintf("%.2g sigma (the change between the stations, beyond %s sigma of the trend, flagged it),", math.Abs(size)/sigma, kText)
 			}
-			msg = fmt.Sprintf("%s %s by %s A (%s%%) between %s (chainage %.1f m) and %s (%.1f m)%s, %s but under the %s%% taken as a step: at that size more likely the model's error than current leaving or joining: a change of depth or a bend within a few depths of a traverse, or a gradual fall of current that is not a straight line (traverses closer together there would tell)",
+			msg = fmt.Sprintf("%s %s by %s A (%s%%) between %s (chainage %.1f m) and %s (%.1f m)%s, %s but under the %s%% taken as a step: at that size more likely the model's error than current leaving or joining: a change of depth or a bend within a few depths of a traverse, or a gradual change of current along the route that is not a straight line (traverses closer together there would tell)",
 				what, verb, pm(math.Abs(size), sigma), relText, label(first), first.Chainage, label(second), second.Chainage, along, sized, thrText)
 			change = []Value{
 				{Name: "relative change", Value: rel, Unit: "%"},
