@@ -172,7 +172,7 @@ func dcMains(o *locateOptions, path string, s *ingest.Samples) (*ingest.Samples,
 	f := o.dcMains
 	why := fmt.Sprintf("--dc-mains %g", f)
 	if f == 0 {
-		line, _, share, ok := alternatingLine(s)
+		line, rms, share, ok := alternatingLine(s)
 		if !ok || share < altShare {
 			return s, "", ""
 		}
@@ -184,7 +184,7 @@ func dcMains(o *locateOptions, path string, s *ingest.Samples) (*ingest.Samples,
 		if f == 0 {
 			return s, "", alternatingWarning(path, s, 0)
 		}
-		why = fmt.Sprintf("the field alternates at about %.3g Hz, %.0f%% of the readings' variation about their trends, the %g Hz mains", line, 100*math.Min(1, share), f)
+		why = fmt.Sprintf("the field alternates at about %.3g Hz (%.3g nT RMS per component, %.0f%% of the readings' variation about their trends), the %g Hz mains", line, rms, 100*math.Min(1, share), f)
 	}
 	n := mainsBlock(f, fs)
 	if n == 0 {
@@ -204,7 +204,7 @@ func dcMains(o *locateOptions, path string, s *ingest.Samples) (*ingest.Samples,
 	if left > 0 {
 		note += fmt.Sprintf(", %d left out at breaks and group ends (no whole block)", left)
 	}
-	return avg, note + "; --dc-mains off fits the readings as they are", ""
+	return avg, note + fmt.Sprintf("; to locate the AC conductor instead, give --freq %g; --dc-mains off fits the readings as they are", f), ""
 }
 
 // slowMainsAdvice says how to keep a DC survey whose log is too slow to

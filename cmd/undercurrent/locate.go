@@ -847,7 +847,7 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			var note, w string
 			s, note, w = dcMains(o, path, s)
 			if note != "" {
-				sv.warnings = append(sv.warnings, note)
+				sv.alerts = append(sv.alerts, note)
 			}
 			if w != "" {
 				sv.alerts = append(sv.alerts, w)
