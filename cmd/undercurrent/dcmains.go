@@ -26,8 +26,9 @@ import (
 
 const (
 	// dcMainsReject is the largest share of the mains' amplitude a block
-	// may leave (40 dB down): a block of N readings at rate fs leaves
-	// |sum exp(2 pi i f n / fs)| / N of a tone at f.
+	// may leave (40 dB down): the mean of N readings at rate fs leaves
+	// |sum exp(2 pi i f n / fs)| / N of a tone at f, and the triangle
+	// of 2N-1 readings (see triangle) the square of that.
 	dcMainsReject = 0.01
 	// dcMainsMaxBlock is the longest block, s: five cycles at 50 Hz,
 	// 6 cm at a walking pace, far under a buried conductor's anomaly.
@@ -60,18 +61,19 @@ func mainsLeft(f, fs float64, n int) float64 {
 	return cmplx.Abs(z) / float64(n)
 }
 
-// mainsBlock returns the readings per block that average whole cycles of
-// the mains at f for a log at rate fs: the fewest, of at least two
-// readings and at most dcMainsMaxBlock long, leaving at most
-// dcMainsReject of the mains; 0 when the rate cannot (too slow: the mains
-// alias onto the direct current's band).
+// mainsBlock returns n, the readings whose mean spans whole cycles of the
+// mains at f for a log at rate fs (the triangle's blocks are 2n-1 long):
+// the fewest, of at least two readings and m cycles at most
+// dcMainsMaxBlock long, whose triangle leaves at most dcMainsReject of the
+// mains (5 at 256 Hz and 50 Hz, 5.12 per cycle: 0.07%); 0 when the rate
+// cannot (too slow: the mains alias onto the direct current's band).
 func mainsBlock(f, fs float64) int {
 	if !(f > 0) || !(fs > 2*f*0.999) {
 		return 0
 	}
 	for m := 1; float64(m)/f <= dcMainsMaxBlock*1.0001; m++ {
 		n := int(math.Round(float64(m) * fs / f))
-		if n >= 2 && mainsLeft(f, fs, n) <= dcMainsReject {
+		if l := mainsLeft(f, fs, n); n >= 2 && l*l <= dcMainsReject {
 			return n
 		}
 	}
@@ -200,7 +202,7 @@ func dcMains(o *locateOptions, path string, s *ingest.Samples) (*ingest.Samples,
 		return s, "", alternatingWarning(path, s, f)
 	}
 	note := fmt.Sprintf("%s: %s, so the readings were averaged over whole cycles before the DC fits, in blocks of %d (%.3g ms) weighted as a triangle, the mean of %s (%s at %.4g Hz) taken over again: the mains and their harmonics, even with an amplitude changing along the walk, cancel to under %.2g%%; %d readings became %d",
-		path, why, len(w), 1000*float64(len(w))/fs, plural(n, "reading"), plural(int(math.Round(float64(n)*f/fs)), "cycle"), fs, 100*dcMainsReject*dcMainsReject, s.Len(), avg.Len())
+		path, why, len(w), 1000*float64(len(w))/fs, plural(n, "reading"), plural(int(math.Round(float64(n)*f/fs)), "cycle"), fs, 100*dcMainsReject, s.Len(), avg.Len())
 	if left > 0 {
 		note += fmt.Sprintf(", %d left out at breaks and group ends (no whole block)", left)
 	}
