@@ -257,7 +257,7 @@ func attenuationFinding(u []*Placed, isStep []bool, set *Settings) (Finding, boo
 		Kind:     KindAttenuation,
 		Severity: SeverityInfo,
 		From:     first.Chainage, To: last.Chainage,
-		Position: mid(first.Point, last.Point),
+		Position: pointAt(u, (first.Chainage+last.Chainage)/2), // on the route, midway
 		Keys:     []string{first.Key, last.Key},
 		Message: fmt.Sprintf("the current %s steadily along the route, by %s%% per %s (%s dB per %s, the current's ratio) from %s to %s, fitted as an exponential%s: %s",
 			verb, pm(math.Abs(pct), spct), unit, pm(math.Abs(db), sdb), unit, first.Key, last.Key, steps, what),

@@ -33,6 +33,13 @@ func unsearched(ps []Placed) []Finding {
 		// with usable stations either side.
 		if j-i >= unsearchedMin && i > 0 && j < len(ps) {
 			a, b := &ps[i-1], &ps[j]
+			// The stretch's middle, along the stations (the failed ones'
+			// points are their readings' centres, which follow the route's
+			// turns better than the chord between a and b).
+			run := make([]*Placed, 0, j-i+2)
+			for k := i - 1; k <= j; k++ {
+				run = append(run, &ps[k])
+			}
 			keys := make([]string, 0, j-i)
 			for k := i; k < j; k++ {
 				keys = append(keys, ps[k].Key)
@@ -45,7 +52,7 @@ func unsearched(ps []Placed) []Finding {
 				Kind:     KindUnsearched,
 				Severity: SeverityCaution,
 				From:     a.Chainage, To: b.Chainage,
-				Position: [3]float64{(a.Point[0] + b.Point[0]) / 2, (a.Point[1] + b.Point[1]) / 2, (a.Point[2] + b.Point[2]) / 2},
+				Position: pointAt(run, (a.Chainage+b.Chainage)/2),
 				Keys:     keys,
 				Message:  msg,
 				Values: []Value{
