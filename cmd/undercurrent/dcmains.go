@@ -191,6 +191,9 @@ func dcMains(o *locateOptions, path string, s *ingest.Samples) (*ingest.Samples,
 	n := mainsBlock(f, fs)
 	if n == 0 {
 		w := alternatingWarning(path, s, f)
+		if w != "" && o.dcMains != 0 {
+			w += fmt.Sprintf("; --dc-mains %g cannot average them at this log's rate, %.3g Hz", f, fs)
+		}
 		if w == "" {
 			w = fmt.Sprintf("%s: --dc-mains %g: the log's rate, %.3g Hz, does not hold whole cycles of the %g Hz mains in blocks of two readings or more (up to %g s), so the readings are fitted as they are; %s", path, f, fs, f, dcMainsMaxBlock, slowMainsAdvice(f))
 		}
