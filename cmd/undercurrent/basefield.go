@@ -308,3 +308,42 @@ func (c *baseCheck) warnings(o *locateOptions, sv *survey) (alerts, warns []stri
 	}
 	return alerts, warns
 }
+
+// baseFarKm is the distance from the survey beyond which a base record is
+// said to be too far to stand for the survey's own variation: the daily
+// variation changes with latitude and follows local time, and a base
+// station within about a hundred km, a few hundred at most, is the usual
+// practice for a magnetic survey's diurnal correction (common practice,
+// from memory; storms and pulsations differ over shorter distances still).
+const baseFarKm = 300
+
+// baseFarWarning returns a warning when the base record gives its own
+// latitude and longitude (an IAGA-2002 header) and lies more than
+// baseFarKm from the survey's origin, with the distance and the hours of
+// local time between them; "" when it is near, or either place is
+// unknown.
+func baseFarWarning(basePath string, base *ingest.Samples, origin *[2]float64) string {
+	if base == nil || origin == nil {
+		return ""
+	}
+	km, known := baseDistanceKm(base, origin)
+	if !known || !(km > baseFarKm) {
+		return ""
+	}
+	lat, _ := strconv.ParseFloat(strings.TrimSpace(base.Meta["latitude"]), 64)
+	lon, _ := strconv.ParseFloat(strings.TrimSpace(base.Meta["longitude"]), 64)
+	name := strings.TrimSpace(base.Meta["station_name"])
+	if code := strings.TrimSpace(base.Meta["iaga_code"]); code != "" {
+		if name != "" {
+			name += ", "
+		}
+		name += code
+	}
+	if name != "" {
+		name = " (" + name + ")"
+	}
+	// Local time runs 1 hour per 15° of longitude.
+	hours := math.Abs(math.Remainder(lon-origin[1], 360)) / 15
+	return fmt.Sprintf("the base record %s%s lies at latitude %.3f°, longitude %.3f°, %.0f km from the survey (latitude %.3f°, longitude %.3f°) and %.1f hours of local time apart: the daily variation changes with latitude and follows local time, so a base record stands for a survey's variation only within about a few hundred km (%d km taken here, common practice); removing a far station's variation can add tens of nT of drift that is not the survey's. Use a base magnetometer at the site or the nearest observatory's record, or check the drift without --base",
+		basePath, name, lat, lon, km, origin[0], origin[1], hours, baseFarKm)
+}

@@ -144,20 +144,41 @@ func alternatingLine(s *ingest.Samples) (freq, rms, share float64, ok bool) {
 
 // alternatingWarning names an alternating field in the DC log s at path
 // (alternatingLine) when its line holds at least altShare of the
-// readings' variation; "" when none does.
-func alternatingWarning(path string, s *ingest.Samples) string {
+// readings' variation; "" when none does. mains is the mains frequency
+// the run was told of (--dc-mains), 0 when none: a line at it, or at
+// 50 or 60 Hz, or where either lands in a log too slow to hold it (an
+// alias), is worded as the mains, with how to keep the DC survey; --freq
+// locates the AC conductor, not the direct current.
+func alternatingWarning(path string, s *ingest.Samples, mains float64) string {
 	f, rms, share, ok := alternatingLine(s)
 	if !ok || share < altShare {
 		return ""
 	}
-	give := fmt.Sprintf("%.3g", f)
-	for _, m := range []float64{50, 60, 16.7} {
+	fs := logRate(s)
+	cands := []float64{50, 60}
+	if mains > 0 {
+		cands = []float64{mains}
+	}
+	head := fmt.Sprintf("%s: the field alternates at about %.3g Hz (%.3g nT RMS per component, %.0f%% of the readings' variation about their trends): the readings were fitted as the field of direct currents, in which an alternating one averages away, so fits that find no current or miss the readings may sit over a live AC conductor",
+		path, f, rms, 100*math.Min(1, share))
+	for _, m := range cands {
 		if math.Abs(f-m) < 0.02*m {
-			give = fmt.Sprintf("%g", m)
+			return fmt.Sprintf("%s; it is the %g Hz mains: %s", head, m, slowMainsAdvice(m))
+		}
+		// The mains in a log at a rate under twice theirs lands at
+		// |m - k fs| for the nearest k.
+		if fs > 0 && fs < 2*m {
+			alias := math.Abs(m - math.Round(m/fs)*fs)
+			if math.Abs(f-alias) < 0.02*m {
+				return fmt.Sprintf("%s; at %.3g readings a second the %g Hz mains land there (an alias: the log is too slow to hold their cycles): %s", head, fs, m, slowMainsAdvice(m))
+			}
 		}
 	}
-	return fmt.Sprintf("%s: the field alternates at about %.3g Hz (%.3g nT RMS per component, %.0f%% of the readings' variation about their trends): the readings were fitted as the field of direct currents, in which an alternating one averages away, so fits that find no current or miss the readings may sit over a live AC conductor; to locate it, give --freq %s",
-		path, f, rms, 100*math.Min(1, share), give)
+	give := fmt.Sprintf("%.3g", f)
+	if math.Abs(f-16.7) < 0.02*16.7 {
+		give = "16.7"
+	}
+	return fmt.Sprintf("%s; to locate it, give --freq %s", head, give)
 }
 
 // quadTrend removes the least-squares quadratic in the index from n

@@ -43,6 +43,9 @@ type locateOptions struct {
 	freq         float64
 	window       float64
 	mainsText    string
+	dcMainsText  string
+	dcMains      float64 // --dc-mains 50 or 60; 0: auto or off (dcMainsAuto)
+	dcMainsAuto  bool
 	mains        []float64 // mains frequencies fitted as nuisance beside another --freq
 	count        string
 	groupBy      string
@@ -97,6 +100,7 @@ func (o *locateOptions) setFlags(fs *pflag.FlagSet) {
 	fs.Float64Var(&o.freq, "freq", 0, "demodulate the AC field at `HZ` (50, 60, 16.7, 512...) and fit RMS currents with phase; the field's own frequency is then estimated from the log, and if it is off (a grid at 50.1 Hz) the log is demodulated at the estimate, with a warning saying so (too far off, it refuses and names the frequency found); without --freq the DC field is fitted (no frequency is estimated and AC is not looked for)")
 	fs.StringVar(&o.mainsText, "mains", "50,60", "with --freq at another frequency than the mains (an injected tracer, 16.7 Hz), fit the mains `HZ` (50, 60, both as 50,60, or none) and their odd harmonics alongside in every window, so that a strong mains field changing as the sensor walks does not leak into the signal as noise")
 	fs.Float64Var(&o.window, "window", 0, "AC demodulation window, `S` seconds (default: ten cycles at 50 or 60 Hz; at any other frequency ten cycles or 0.1 s, whichever is longer, rounded up to a multiple of 0.1 s, so that the window holds whole cycles of the 50 or 60 Hz mains and they do not leak in)")
+	fs.StringVar(&o.dcMainsText, "dc-mains", "auto", "for a DC run (no --freq), average the readings over whole cycles of the mains at `HZ` (50 or 60) before the fits, so that a live mains cable's field, alternating too fast for the walk, cancels with its harmonics: the log needs several readings per cycle (100 Hz or more at 50 Hz); auto does it when the readings' strongest alternating field is at 50 or 60 Hz, off never")
 	o.coil.add(fs)
 	fs.StringVar(&o.count, "count", "auto", "number of line conductors per fit, `N` (1-4) or auto")
 	fs.StringVar(&o.groupBy, "group-by", "", "fit each value of column `COL` separately (a traverse, a sensor, a time window) and build the along-route profile from the groups")
@@ -154,6 +158,12 @@ func (o *locateOptions) check(fs *pflag.FlagSet) error {
 		return err
 	}
 	o.mains = mains
+	if o.dcMains, o.dcMainsAuto, err = parseDCMains(o.dcMainsText); err != nil {
+		return err
+	}
+	if fs != nil && fs.Changed("dc-mains") && o.freq != 0 {
+		return usageErrorf("--dc-mains is for a DC run: with --freq the window's whole cycles keep the mains out (--mains fits them beside a tracer)")
+	}
 	if fs != nil && fs.Changed("mains") && o.freq == 0 {
 		return usageErrorf("--mains needs --freq: the mains are fitted beside an AC signal")
 	}
@@ -832,8 +842,14 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		}
 		doc.Inputs = append(doc.Inputs, fileInput("survey", path, s.Len()))
 		if !sv.ac {
-			// An AC log located without --freq (dcalternating.go).
-			if w := alternatingWarning(path, s); w != "" {
+			// An AC log located without --freq (dcalternating.go), and
+			// the mains averaged out over whole cycles (dcmains.go).
+			var note, w string
+			s, note, w = dcMains(o, path, s)
+			if note != "" {
+				sv.alerts = append(sv.alerts, note)
+			}
+			if w != "" {
 				sv.alerts = append(sv.alerts, w)
 			}
 		}
@@ -863,6 +879,15 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		sv.baseCheck.base, sv.baseCheck.raw = base, &field
 		if org := doc.Frame.Origin; org != nil {
 			sv.baseCheck.origin = &[2]float64{org.Lat, org.Lon}
+		}
+	}
+	// An observatory's record from far away does not hold the survey's
+	// own variation (basefield.go baseFarWarning).
+	if base != nil {
+		if org := doc.Frame.Origin; org != nil {
+			if w := baseFarWarning(o.base, base, &[2]float64{org.Lat, org.Lon}); w != "" {
+				sv.alerts = append(sv.alerts, w)
+			}
 		}
 	}
 	// Several logs: the groups in time order, not the order of the files

@@ -41,6 +41,13 @@ const (
 	// currents disagree beyond their sigmas: the current changed between
 	// the walks, or varied during them (walks.go).
 	KindWalksDiffer Kind = "walks-differ"
+	// KindUnsearched is a stretch of the route inside which two or more
+	// stations in a row give no usable current: no step can be found
+	// there (unsearched.go).
+	KindUnsearched Kind = "unsearched"
+	// KindAttenuation is the steady fall of current along the route,
+	// fitted as an exponential (attenuation.go). Information only.
+	KindAttenuation Kind = "attenuation"
 )
 
 // Severity ranks findings for a crew.

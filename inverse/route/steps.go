@@ -87,11 +87,18 @@ func steps(ps []Placed, set *Settings, tau, widen float64) (out []Finding, notes
 			out[i].Values = append(out[i].Values, Value{Name: "between-station scatter", Value: tau, Unit: "A"})
 		}
 	}()
+	// A steady exponential fall long against the route is tested in log
+	// current (attenuation.go).
+	logTrend := set.trendWindow() > 0 && useLogTrend(u, k)
 	for {
 		if len(u) < 2 {
 			return out, notes
 		}
-		d := detect(u, set)
+		tu := u // the stations as the intervals are tested
+		if logTrend {
+			tu = logCurrents(u)
+		}
+		d := detect(tu, set)
 		spike := -1
 		for j := 0; j+1 < len(d.isStep); j++ {
 			if !d.isStep[j] || !d.isStep[j+1] || (d.dI[j] > 0) == (d.dI[j+1] > 0) {
@@ -102,7 +109,7 @@ func steps(ps []Placed, set *Settings, tau, widen float64) (out []Finding, notes
 			// detrended steps; what is left is the outer stations' noise
 			// and the trend's.
 			back := d.excess[j] + d.excess[j+1]
-			v := u[j].CurrentSigma*u[j].CurrentSigma + u[j+2].CurrentSigma*u[j+2].CurrentSigma +
+			v := tu[j].CurrentSigma*tu[j].CurrentSigma + tu[j+2].CurrentSigma*tu[j+2].CurrentSigma +
 				d.total[j]*d.total[j] - d.s[j]*d.s[j] + d.total[j+1]*d.total[j+1] - d.s[j+1]*d.s[j+1]
 			if math.Abs(back) <= k*math.Sqrt(v) {
 				spike = j + 1
@@ -110,7 +117,33 @@ func steps(ps []Placed, set *Settings, tau, widen float64) (out []Finding, notes
 			}
 		}
 		if spike < 0 {
+			if logTrend {
+				// The steps are sized and worded in amperes.
+				lin := detectionOf(u)
+				lin.isStep, lin.excess, lin.total = d.isStep, d.excess, d.total
+				d = lin
+			}
 			f, n := stepFindings(u, own(u, orig), d, set, tau, bs)
+			if set.trendWindow() > 0 {
+				// The rate of a steady fall, with a level of its own
+				// between the steps reported, not
+				// between intervals flagged and then not kept.
+				key := map[string]int{}
+				for _, x := range f {
+					if x.Kind == KindCurrentStep {
+						for _, k := range x.Keys {
+							key[k]++
+						}
+					}
+				}
+				kept := make([]bool, len(d.isStep))
+				for j := range kept {
+					kept[j] = key[u[j].Key] > 0 && key[u[j+1].Key] > 0
+				}
+				if a, ok := attenuationFinding(u, kept, set); ok {
+					f = append(f, a)
+				}
+			}
 			return append(out, f...), n
 		}
 		// A station already reported as a poor fit (a bend, a second
@@ -121,6 +154,19 @@ func steps(ps []Placed, set *Settings, tau, widen float64) (out []Finding, notes
 		}
 		u = append(u[:spike:spike], u[spike+1:]...)
 	}
+}
+
+// detectionOf returns the differences between successive stations of u,
+// with no step marked yet.
+func detectionOf(u []*Placed) *detection {
+	m := len(u) - 1 // intervals
+	d := &detection{dI: make([]float64, m), dx: make([]float64, m), s: make([]float64, m), excess: make([]float64, m), total: make([]float64, m), isStep: make([]bool, m)}
+	for j := 0; j < m; j++ {
+		d.dI[j] = u[j+1].Current - u[j].Current
+		d.dx[j] = u[j+1].Chainage - u[j].Chainage
+		d.s[j] = math.Hypot(u[j].CurrentSigma, u[j+1].CurrentSigma)
+	}
+	return d
 }
 
 // detection holds the per-interval step test over a list of stations.
@@ -147,14 +193,9 @@ type detection struct {
 // with it out of the trends. Every step is then sized and kept only when
 // the levels either side differ by StepK of their sigma (stepFindings).
 func detect(u []*Placed, set *Settings) *detection {
-	m := len(u) - 1 // intervals
-	d := &detection{dI: make([]float64, m), dx: make([]float64, m), s: make([]float64, m), excess: make([]float64, m), total: make([]float64, m), isStep: make([]bool, m)}
+	d := detectionOf(u)
+	m := len(d.dI)
 	dx := d.dx
-	for j := 0; j < m; j++ {
-		d.dI[j] = u[j+1].Current - u[j].Current
-		dx[j] = u[j+1].Chainage - u[j].Chainage
-		d.s[j] = math.Hypot(u[j].CurrentSigma, u[j+1].CurrentSigma)
-	}
 	k := set.stepK()
 	w := set.trendWindow()
 	for {
@@ -533,8 +574,17 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64, bs 
 			kind, severity = KindCurrentChange, SeverityInfo
 			rel, thr := 100*math.Abs(size)/level, 100*set.minStep()
 			relText, thrText := underText(rel, thr)
-			msg = fmt.Sprintf("%s %s by %s A (%s%%) between %s (chainage %.1f m) and %s (%.1f m)%s, beyond %s sigma but under the %s%% taken as a step: at that size more likely the straight-line model's error, where the conductor changes depth or bends within a few depths of a traverse, than current leaving or joining (traverses closer together there would tell)",
-				what, verb, pm(math.Abs(size), sigma), relText, label(first), first.Chainage, label(second), second.Chainage, along, strconv.FormatFloat(set.stepK(), 'g', 3, 64), thrText)
+			// "beyond 3 sigma" beside the number it is true of: the
+			// change sized from the levels, or else the interval test's
+			// (a 0.025 ± 0.015 A change read "beyond 3 sigma"; found in
+			// review).
+			kText := strconv.FormatFloat(set.stepK(), 'g', 3, 64)
+			sized := fmt.Sprintf("%.2g sigma, beyond %s sigma,", math.Abs(size)/sigma, kText)
+			if !(math.Abs(size) > set.stepK()*sigma) {
+				sized = fmt.Sprintf("%.2g sigma (the change between the stations, beyond %s sigma of the trend, flagged it),", math.Abs(size)/sigma, kText)
+			}
+			msg = fmt.Sprintf("%s %s by %s A (%s%%) between %s (chainage %.1f m) and %s (%.1f m)%s, %s but under the %s%% taken as a step: at that size more likely the model's error than current leaving or joining: a change of depth or a bend within a few depths of a traverse, or a gradual change of current along the route that is not a straight line (traverses closer together there would tell)",
+				what, verb, pm(math.Abs(size), sigma), relText, label(first), first.Chainage, label(second), second.Chainage, along, sized, thrText)
 			change = []Value{
 				{Name: "relative change", Value: rel, Unit: "%"},
 				{Name: "minimum step", Value: thr, Unit: "%"},

@@ -1,0 +1,219 @@
+package main
+
+import (
+	"fmt"
+	"math"
+	"math/cmplx"
+	"strings"
+
+	"undercurrent/ingest"
+)
+
+// The mains in a DC run.
+//
+// A DC survey beside a live mains cable reads the cable's field, hundreds
+// or thousands of nT alternating 50 or 60 times a second, on top of the
+// direct current's. The DC fits take it as noise: over 650 m of a 2 A
+// pipeline 9 m from a 60 A cable every traverse read "no current found"
+// and a coating defect went unreported (found in review). Averaged over
+// whole cycles the mains and all their harmonics cancel and the direct
+// current's field is left. So, where the log's rate holds several
+// readings per mains cycle, a DC run averages the readings in blocks of
+// whole cycles (one reading per block, at the block's mean time and
+// position; triangle weights, see triangle) before the fits: by default when the alternating-field check
+// (dcalternating.go) finds the 50 or 60 Hz mains, always with --dc-mains
+// 50 or 60, never with --dc-mains off.
+
+const (
+	// dcMainsReject is the largest share of the mains' amplitude a block
+	// may leave (40 dB down): the mean of N readings at rate fs leaves
+	// |sum exp(2 pi i f n / fs)| / N of a tone at f, and the triangle
+	// of 2N-1 readings (see triangle) the square of that.
+	dcMainsReject = 0.01
+	// dcMainsMaxBlock is the longest block, s: five cycles at 50 Hz,
+	// 6 cm at a walking pace, far under a buried conductor's anomaly.
+	dcMainsMaxBlock = 0.1
+)
+
+// parseDCMains reads --dc-mains: "auto" (0, auto true), "off" (0, false),
+// or 50 or 60.
+func parseDCMains(text string) (hz float64, auto bool, err error) {
+	switch strings.ToLower(strings.TrimSpace(text)) {
+	case "auto", "":
+		return 0, true, nil
+	case "off", "none":
+		return 0, false, nil
+	case "50":
+		return 50, false, nil
+	case "60":
+		return 60, false, nil
+	}
+	return 0, false, usageErrorf("--dc-mains %q: want auto, off, 50 or 60", text)
+}
+
+// mainsLeft is the share of a tone at f that the mean of n readings
+// taken at rate fs leaves.
+func mainsLeft(f, fs float64, n int) float64 {
+	var z complex128
+	for k := range n {
+		z += cmplx.Exp(complex(0, 2*math.Pi*f*float64(k)/fs))
+	}
+	return cmplx.Abs(z) / float64(n)
+}
+
+// mainsBlock returns n, the readings whose mean spans whole cycles of the
+// mains at f for a log at rate fs (the triangle's blocks are 2n-1 long):
+// the fewest, of at least two readings and m cycles at most
+// dcMainsMaxBlock long, whose triangle leaves at most dcMainsReject of the
+// mains (5 at 256 Hz and 50 Hz, 5.12 per cycle: 0.07%); 0 when the rate
+// cannot (too slow: the mains alias onto the direct current's band).
+func mainsBlock(f, fs float64) int {
+	if !(f > 0) || !(fs > 2*f*0.999) {
+		return 0
+	}
+	for m := 1; float64(m)/f <= dcMainsMaxBlock*1.0001; m++ {
+		n := int(math.Round(float64(m) * fs / f))
+		if l := mainsLeft(f, fs, n); n >= 2 && l*l <= dcMainsReject {
+			return n
+		}
+	}
+	return 0
+}
+
+// triangle returns the weights of a block of 2n-1 readings, the mean of
+// n readings taken n times over (1, 2, ..., n, ..., 2, 1, summing to 1):
+// its response is the square of the n-reading mean's, so it leaves the
+// mains' share squared, and its zeros are double: a mains field whose
+// amplitude changes along the walk (a cable's, nearer at one end of a
+// traverse) is rejected too, where the plain mean of one cycle left
+// A'/(2 pi f) of it, about 2.5 nT at 800 nT/s and 50 Hz, which biased the
+// currents by half a per cent (found in testing).
+func triangle(n int) []float64 {
+	w := make([]float64, 2*n-1)
+	for k := range w {
+		w[k] = float64(min(k+1, 2*n-1-k)) / float64(n*n)
+	}
+	return w
+}
+
+// averageBlocks returns s averaged in blocks of len(w) readings, weighted
+// by w: each block successive readings evenly spaced at 1/fs, in one
+// group, with finite field readings; a block's reading is their weighted
+// mean (time, position, field, temperature, F) and its middle reading's
+// attitude. Readings that make no whole block (at a break, a group's end)
+// are left out; their count is returned.
+func averageBlocks(s *ingest.Samples, w []float64, fs float64) (*ingest.Samples, int) {
+	n := len(w)
+	out := &ingest.Samples{Source: s.Source, Frame: s.Frame, Origin: s.Origin, Meta: s.Meta, NoTime: s.NoTime,
+		Absent: s.Absent, Warnings: s.Warnings, InFrame: s.InFrame, InFrameStated: s.InFrameStated}
+	mean := [][2]*[]float64{
+		{&s.Time, &out.Time}, {&s.X, &out.X}, {&s.Y, &out.Y}, {&s.Z, &out.Z},
+		{&s.Bx, &out.Bx}, {&s.By, &out.By}, {&s.Bz, &out.Bz}, {&s.Temp, &out.Temp}, {&s.F, &out.F},
+	}
+	mid := [][2]*[]float64{
+		{&s.Roll, &out.Roll}, {&s.Pitch, &out.Pitch}, {&s.Yaw, &out.Yaw},
+		{&s.Qw, &out.Qw}, {&s.Qx, &out.Qx}, {&s.Qy, &out.Qy}, {&s.Qz, &out.Qz},
+	}
+	dt := 1 / fs
+	left := 0
+	ok := func(i int) bool {
+		return finite(s.Bx[i]) && finite(s.By[i]) && finite(s.Bz[i])
+	}
+	for lo := 0; lo < s.Len(); {
+		hi := lo + 1
+		for hi < lo+n && hi < s.Len() && ok(hi-1) && math.Abs(s.Time[hi]-s.Time[hi-1]-dt) <= 0.01*dt &&
+			(s.Group == nil || s.Group[hi] == s.Group[lo]) {
+			hi++
+		}
+		if hi-lo < n || !ok(hi-1) {
+			// Not a whole block: the readings up to the break are left out.
+			left += hi - lo
+			lo = hi
+			continue
+		}
+		for _, c := range mean {
+			if *c[0] == nil {
+				continue
+			}
+			var sum float64
+			for i := lo; i < hi; i++ {
+				sum += w[i-lo] * (*c[0])[i]
+			}
+			*c[1] = append(*c[1], sum)
+		}
+		for _, c := range mid {
+			if *c[0] != nil {
+				*c[1] = append(*c[1], (*c[0])[lo+n/2])
+			}
+		}
+		if s.Group != nil {
+			out.Group = append(out.Group, s.Group[lo])
+		}
+		lo = hi
+	}
+	return out, left
+}
+
+// dcMains averages the DC log s at path over whole mains cycles (see
+// above) when o asks for it or, by default, when the alternating-field
+// check finds the mains. It returns the log to fit (s itself when nothing
+// was done), a note saying what was done and an alert (the alternating
+// field left in, with advice), either "".
+func dcMains(o *locateOptions, path string, s *ingest.Samples) (*ingest.Samples, string, string) {
+	if !o.dcMainsAuto && o.dcMains == 0 {
+		if w := alternatingWarning(path, s, 0); w != "" {
+			w += "; --dc-mains off kept the readings as they are"
+			if fs := logRate(s); mainsBlock(50, fs) > 0 || mainsBlock(60, fs) > 0 {
+				w += " (this log's rate holds whole mains cycles: --dc-mains 50 or 60 averages them away)"
+			}
+			return s, "", w
+		}
+		return s, "", ""
+	}
+	fs := logRate(s)
+	f := o.dcMains
+	why := fmt.Sprintf("--dc-mains %g", f)
+	if f == 0 {
+		line, rms, share, ok := alternatingLine(s)
+		if !ok || share < altShare {
+			return s, "", ""
+		}
+		for _, m := range []float64{50, 60} {
+			if math.Abs(line-m) < 0.02*m {
+				f = m
+			}
+		}
+		if f == 0 {
+			return s, "", alternatingWarning(path, s, 0)
+		}
+		why = fmt.Sprintf("the field alternates at about %.3g Hz (%.3g nT RMS per component, %.0f%% of the readings' variation about their trends), the %g Hz mains", line, rms, 100*math.Min(1, share), f)
+	}
+	n := mainsBlock(f, fs)
+	if n == 0 {
+		w := alternatingWarning(path, s, f)
+		if w != "" && o.dcMains != 0 {
+			w += fmt.Sprintf("; --dc-mains %g cannot average them at this log's rate, %.3g Hz", f, fs)
+		}
+		if w == "" {
+			w = fmt.Sprintf("%s: --dc-mains %g: the log's rate, %.3g Hz, does not hold whole cycles of the %g Hz mains in blocks of two readings or more (up to %g s), so the readings are fitted as they are; %s", path, f, fs, f, dcMainsMaxBlock, slowMainsAdvice(f))
+		}
+		return s, "", w
+	}
+	w := triangle(n)
+	avg, left := averageBlocks(s, w, fs)
+	if avg.Len() < 3 {
+		return s, "", alternatingWarning(path, s, f)
+	}
+	note := fmt.Sprintf("%s: %s, so the readings were averaged over whole cycles before the DC fits, in blocks of %d (%.3g ms) weighted as a triangle, the mean of %s (%s at %.4g Hz) taken over again: the mains and their harmonics, even with an amplitude changing along the walk, cancel to under %.2g%%; %d readings became %d",
+		path, why, len(w), 1000*float64(len(w))/fs, plural(n, "reading"), plural(int(math.Round(float64(n)*f/fs)), "cycle"), fs, 100*dcMainsReject, s.Len(), avg.Len())
+	if left > 0 {
+		note += fmt.Sprintf(", %d left out at breaks and group ends (no whole block)", left)
+	}
+	return avg, note + fmt.Sprintf("; to locate the AC conductor instead, give --freq %g; --dc-mains off fits the readings as they are", f), ""
+}
+
+// slowMainsAdvice says how to keep a DC survey whose log is too slow to
+// average the mains at f away.
+func slowMainsAdvice(f float64) string {
+	return fmt.Sprintf("the direct current's fits need the mains averaged out: log at a rate holding several readings per cycle (%g or %g Hz, say), which locate then averages over whole cycles, or average over whole %g ms cycles in the logger; --freq %g locates the AC conductor, not the direct current", 4*f, 10*f, 1000/f, f)
+}
