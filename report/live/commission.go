@@ -321,9 +321,12 @@ func (w *assetWorker) commission(win *window) error {
 		w.misfits++
 		w.log.Warn("commissioning failed; trying again with more data", "err", err, "windows", len(w.pending))
 		if w.misfits > limit {
+			if name, ok := w.misfitSensor(&sum, fitted); ok {
+				err = fmt.Errorf("%w; without sensor %s the readings commission: its orientation or position in the site file is likely wrong, or it was moved or turned", err, name)
+			}
 			return w.commissionStopped(win, &needsSiteError{fmt.Errorf("live: asset %s: commissioning failed in each of %d tries, with %g s of readings at the last: %w; "+
-				"more readings do not mend it: the readings are not those of the site file's conductors as thin straight lines (an extended conductor such as a flat bar close to the sensors, a bend, another source near the sensors), "+
-				"or a sensor's position or orientation in the site file is wrong; mend the site file (or hold the geometry with model = \"fixed\") and restart serve",
+				"more readings do not mend a model that misses them (an extended conductor such as a flat bar close to the sensors, a bend, another source near the sensors, "+
+				"or a sensor's position or orientation in the site file wrong): mend the site file (or hold the geometry with model = \"fixed\") and restart serve",
 				w.asset.Name, w.misfits, float64(len(fitted))*w.asset.Window.Seconds(), err)})
 		}
 		return nil
@@ -384,6 +387,58 @@ func (w *assetWorker) commission(win *window) error {
 // current) before the asset is stopped: twenty commissioning periods.
 func (w *assetWorker) commissionLimit() int {
 	return 20 * int(w.asset.Commission.Seconds()/w.asset.Window.Seconds()+1)
+}
+
+// misfitSensor names the one sensor without whose mean reading sum (of
+// the windows reds) commissions, when there is exactly one: a sensor
+// whose position or orientation the site file gives wrong pulls the fit
+// of all towards itself, so that the lines fitted with it do not show
+// where the misfit is.
+func (w *assetWorker) misfitSensor(sum *SolveInput, reds []*reduced) (string, bool) {
+	seen := map[int]bool{}
+	for _, r := range reds {
+		for _, si := range r.used {
+			seen[si] = true
+		}
+	}
+	var names []string
+	for si, s := range w.asset.Sensors {
+		if seen[si] {
+			names = append(names, s.Name)
+		}
+	}
+	if len(names) != len(sum.Points) || len(names) < 3 {
+		return "", false
+	}
+	found := ""
+	for k := range names {
+		sub := SolveInput{WindowSigma: sum.WindowSigma, Sigma: sum.Sigma}
+		for i := range names {
+			if i == k {
+				continue
+			}
+			sub.Points = append(sub.Points, sum.Points[i])
+			if sum.Fields != nil {
+				sub.Fields = append(sub.Fields, sum.Fields[i])
+			}
+			if sum.Phasors != nil {
+				sub.Phasors = append(sub.Phasors, sum.Phasors[i])
+			}
+			if i < len(sum.Sigmas) {
+				sub.Sigmas = append(sub.Sigmas, sum.Sigmas[i])
+			}
+		}
+		if len(sub.Sigmas) != len(sub.Points) {
+			sub.Sigmas = nil
+		}
+		if _, err := w.svc.commissioner.Commission(&sub, w.asset.Conductors); err == nil {
+			if found != "" {
+				return "", false
+			}
+			found = names[k]
+		}
+	}
+	return found, found != ""
 }
 
 // commissionStopped raises the asset's commissioning alarm for err (a

@@ -338,3 +338,39 @@ func fmtSscanRMS(msg string, rms *float64) (int, error) {
 	}
 	return fmt.Sscanf(msg[i:], "miss the commissioning readings by %g nT RMS", rms)
 }
+
+// A sensor whose orientation the site file gives 90 degrees wrong
+// (km-c, yaw 90; the readings simulated with it facing north as the
+// others, 2 A in the pipe of waitPipe, Biot-Savart) keeps commissioning
+// from succeeding: the free fit bends towards it and the misfit is then
+// spread over every sensor. When the asset stops, the sensor without
+// which the readings commission is named.
+func TestCommissionMisfitNamesTurnedSensor(t *testing.T) {
+	text := strings.Replace(kestrelSite, "NOISE", "0.5", 1)
+	text = strings.Replace(text, `model = "fixed"`, `model = "commission"`+"\ncommission = \"20s\"", 1)
+	text = strings.Replace(text, "  name = \"km-c\"\n  position = [2, -1, 0.5]\n", "  name = \"km-c\"\n  position = [2, -1, 0.5]\n  orientation = [90, 0, 0]\n", 1)
+	site := testSite(t, text)
+	a := site.Asset("kestrel-moor")
+	truth := *a
+	truth.Sensors = append([]SensorConfig(nil), a.Sensors...)
+	truth.Sensors[2].Orientation = [3]float64{}
+	truth.Conductors = []ConductorConfig{{Name: "pipe", Point: waitPipe.Point, Direction: waitPipe.Dir}}
+	p, err := newProcessor(a, "test")
+	if err != nil {
+		t.Fatal(err)
+	}
+	rng := rand.New(rand.NewPCG(5, 6))
+	var reds []*reduced
+	for k := range 10 {
+		w := synthWindow(&truth, []complex128{2}, [3]float64{-150, 19200, -45100}, 1796279400+2*float64(k), 10, 20, 0.5, rng)
+		reds = append(reds, p.reduce(w))
+	}
+	sum := meanReadings(reds, len(a.Sensors), false)
+	if _, err := (InverseCommissioner{}).Commission(&sum, a.Conductors); err == nil {
+		t.Fatal("the readings of a sensor turned in the site file commissioned")
+	}
+	w := &assetWorker{svc: &Service{commissioner: InverseCommissioner{}}, asset: a}
+	if name, ok := w.misfitSensor(&sum, reds); !ok || name != "km-c" {
+		t.Errorf("named %q (%v), want km-c", name, ok)
+	}
+}
