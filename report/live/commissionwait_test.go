@@ -225,6 +225,7 @@ func TestCommissionMisfitCapStops(t *testing.T) {
 	if !strings.Contains(ai.Stopped, "flat bar") || !strings.Contains(ai.Stopped, "orientation") {
 		t.Errorf("stopped %q names neither an extended conductor nor a sensor's orientation", ai.Stopped)
 	}
+	n0 := calls.Load()
 	kv := h.leases()
 	e, err := kv.Get(context.Background(), "fenwick-lane")
 	if err != nil {
@@ -239,8 +240,10 @@ func TestCommissionMisfitCapStops(t *testing.T) {
 	if err := <-done; err != nil {
 		t.Errorf("Run: %v", err)
 	}
-	if n := int(calls.Load()); n != limit+1 {
-		t.Errorf("commissioned %d times, want %d (one worker, never taken again)", n, limit+1)
+	// limit+1 tries, then one without each of the three sensors
+	// (misfitSensor); none after the stop.
+	if n := calls.Load(); n != n0 || int(n0) != limit+1+len(a.Sensors) {
+		t.Errorf("commissioned %d times by the stop, %d in all; want %d, none after (not taken again)", n0, n, limit+1+len(a.Sensors))
 	}
 	var alarms []Alarm
 	scan(context.Background(), h.js, broker.StreamAlarms, broker.AlarmSubject("fenwick-lane", AlarmCommissioning), func(d []byte) bool {
