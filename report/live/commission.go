@@ -261,8 +261,30 @@ func (p *processor) hold(newEst NewEstimatorFunc, conds []ConductorConfig) error
 // commission holds windows until the commissioning period is covered,
 // fits the geometry to their mean readings, stores it, then publishes
 // every held window with it.
+//
+// A fit whose conductors' fields the readings do not resolve (the
+// currents off, or too small: unresolvedError) is not a geometry: the
+// windows are held, the asset's endpoint and the log (once) say it waits
+// for current, and the fit is tried again with each window, over the
+// last commissionLimit windows, until the current flows; every held
+// window is then published with the geometry (reading the currents of
+// the time, about none while they were off). Another failure is tried
+// again with more data up to commissionLimit windows; then, as a
+// failure that only the site file can mend (more readings of a field the
+// model does not describe do not mend it), it stops the asset with an
+// alarm.
 func (w *assetWorker) commission(win *window) error {
+	if len(w.pendReds) != len(w.pending) {
+		w.pendReds = w.pendReds[:0] // the held windows were dropped (a restart)
+		for _, pw := range w.pending {
+			w.pendReds = append(w.pendReds, w.proc.reduce(pw))
+		}
+	}
 	w.pending = append(w.pending, win)
+	w.pendReds = append(w.pendReds, w.proc.reduce(win))
+	// The held window's samples are not read again: its reduced readings
+	// are kept (a long wait for current holds many windows).
+	win.Sensors = nil
 	w.pendDur += win.End - win.Start
 	if w.pendDur+1e-9 < w.asset.Commission.Seconds() {
 		return nil
@@ -270,25 +292,50 @@ func (w *assetWorker) commission(win *window) error {
 	if w.svc.commissioner == nil {
 		return fmt.Errorf("live: asset %s: model \"commission\" but no commissioner is configured", w.asset.Name)
 	}
-	reds := make([]*reduced, len(w.pending))
-	for i, pw := range w.pending {
-		reds[i] = w.proc.reduce(pw)
+	limit := w.commissionLimit()
+	reds := w.pendReds
+	fitted := reds
+	if len(fitted) > limit {
+		fitted = fitted[len(fitted)-limit:]
 	}
-	sum := meanReadings(reds, len(w.asset.Sensors), w.asset.Mode == "ac")
+	sum := meanReadings(fitted, len(w.asset.Sensors), w.asset.Mode == "ac")
 	conds, err := w.svc.commissioner.Commission(&sum, w.asset.Conductors)
 	var site *needsSiteError
 	if errors.As(err, &site) {
 		// More data would not help (and averaging on could take in a
 		// change of the currents): stop until the site file is mended.
-		return fmt.Errorf("live: asset %s: commissioning: %w", w.asset.Name, err)
+		return w.commissionStopped(win, fmt.Errorf("live: asset %s: commissioning: %w", w.asset.Name, err))
 	}
-	if err != nil {
-		w.log.Warn("commissioning failed; trying again with more data", "err", err, "windows", len(w.pending))
-		if len(w.pending) > 20*int(w.asset.Commission.Seconds()/w.asset.Window.Seconds()+1) {
-			return fmt.Errorf("live: asset %s: commissioning: %w", w.asset.Name, err)
+	var unres *unresolvedError
+	if errors.As(err, &unres) {
+		w.misfits = 0
+		if !w.waiting {
+			w.waiting = true
+			msg := "waiting for current: " + err.Error()
+			w.log.Warn("commissioning waits for windows in which the conductors' currents flow: the held windows are published once it is commissioned", "err", err, "windows", len(w.pending))
+			w.svc.waiting.Store(w.asset.Name, msg)
 		}
 		return nil
 	}
+	if err != nil {
+		w.misfits++
+		w.log.Warn("commissioning failed; trying again with more data", "err", err, "windows", len(w.pending))
+		if w.misfits > limit {
+			if name, ok := w.misfitSensor(&sum, fitted); ok {
+				err = fmt.Errorf("%w; without sensor %s the readings commission: its orientation or position in the site file is likely wrong, or it was moved or turned", err, name)
+			}
+			return w.commissionStopped(win, &needsSiteError{fmt.Errorf("live: asset %s: commissioning failed in each of %d tries, with %g s of readings at the last: %w; "+
+				"more readings do not mend a model that misses them (an extended conductor such as a flat bar close to the sensors, a bend, another source near the sensors, "+
+				"or a sensor's position or orientation in the site file wrong): mend the site file (or hold the geometry with model = \"fixed\") and restart serve",
+				w.asset.Name, w.misfits, float64(len(fitted))*w.asset.Window.Seconds(), err)})
+		}
+		return nil
+	}
+	if w.waiting {
+		w.waiting = false
+		w.svc.waiting.Delete(w.asset.Name)
+	}
+	w.misfits = 0
 	if len(conds) == len(w.asset.Conductors) && !sameNames(conds, w.asset.Conductors) {
 		for i := range conds { // a commissioner that does not name them
 			conds[i].Name = w.asset.Conductors[i].Name
@@ -326,13 +373,87 @@ func (w *assetWorker) commission(win *window) error {
 		return err
 	}
 	held := w.pending
-	w.pending, w.pendDur = nil, 0
+	w.pending, w.pendReds, w.pendDur = nil, nil, 0
 	for i, pw := range held {
 		if err := w.publishWindow(pw, reds[i]); err != nil {
 			return err
 		}
 	}
 	return nil
+}
+
+// commissionLimit is the most windows the commissioning fit averages,
+// and the most tries of a fit that fails (other than for want of
+// current) before the asset is stopped: twenty commissioning periods.
+func (w *assetWorker) commissionLimit() int {
+	return 20 * int(w.asset.Commission.Seconds()/w.asset.Window.Seconds()+1)
+}
+
+// misfitSensor names the one sensor without whose mean reading sum (of
+// the windows reds) commissions, when there is exactly one: a sensor
+// whose position or orientation the site file gives wrong pulls the fit
+// of all towards itself, so that the lines fitted with it do not show
+// where the misfit is.
+func (w *assetWorker) misfitSensor(sum *SolveInput, reds []*reduced) (string, bool) {
+	seen := map[int]bool{}
+	for _, r := range reds {
+		for _, si := range r.used {
+			seen[si] = true
+		}
+	}
+	var names []string
+	for si, s := range w.asset.Sensors {
+		if seen[si] {
+			names = append(names, s.Name)
+		}
+	}
+	if len(names) != len(sum.Points) || len(names) < 3 {
+		return "", false
+	}
+	found := ""
+	for k := range names {
+		sub := SolveInput{WindowSigma: sum.WindowSigma, Sigma: sum.Sigma}
+		for i := range names {
+			if i == k {
+				continue
+			}
+			sub.Points = append(sub.Points, sum.Points[i])
+			if sum.Fields != nil {
+				sub.Fields = append(sub.Fields, sum.Fields[i])
+			}
+			if sum.Phasors != nil {
+				sub.Phasors = append(sub.Phasors, sum.Phasors[i])
+			}
+			if i < len(sum.Sigmas) {
+				sub.Sigmas = append(sub.Sigmas, sum.Sigmas[i])
+			}
+		}
+		if len(sub.Sigmas) != len(sub.Points) {
+			sub.Sigmas = nil
+		}
+		if _, err := w.svc.commissioner.Commission(&sub, w.asset.Conductors); err == nil {
+			if found != "" {
+				return "", false
+			}
+			found = names[k]
+		}
+	}
+	return found, found != ""
+}
+
+// commissionStopped raises the asset's commissioning alarm for err (a
+// needsSiteError) in win, then returns err, with which the worker stops
+// the asset (halt).
+func (w *assetWorker) commissionStopped(win *window, err error) error {
+	if w.waiting {
+		w.waiting = false
+		w.svc.waiting.Delete(w.asset.Name)
+	}
+	al := w.proc.alarm(win, AlarmCommissioning, "", 0, 0, "commissioning stopped until the site file is mended and serve restarted: "+err.Error())
+	if perr := w.publishAlarm(al, w.msgID(win.Index)+"/"+al.Kind+"/"); perr != nil {
+		w.log.Warn("the commissioning alarm could not be published", "err", perr)
+	}
+	return err
 }
 
 // meanReadings averages each of the nsensors sensors' reduced

@@ -483,10 +483,45 @@ func commissionMisfit(p *inverse.Problem, windowSigma float64, conds []Conductor
 		return err
 	}
 	if r.RMS > math.Sqrt(maxCommissionChi2)*windowSigma {
-		return &misfitError{fmt.Errorf("the %d fitted lines miss the commissioning readings by %.3g nT RMS, %.3g times one window's noise: the conductors are not where the fit put them",
-			len(conds), r.RMS, r.RMS/windowSigma)}
+		return &misfitError{fmt.Errorf("the %d fitted lines miss the commissioning readings by %.3g nT RMS, %.3g times one window's noise: the readings are not those of thin straight lines where the fit put them%s",
+			len(conds), r.RMS, r.RMS/windowSigma, misfitAt(p, src, r.RMS))}
 	}
 	return nil
+}
+
+// misfitAt says where the lines src miss the readings of p by rms nT
+// RMS: at one sensor, when leaving it out (the currents and background
+// fitted again) takes away nine tenths of the residual sum of squares or
+// more (its position or orientation in the site file is then likely
+// wrong, or it was moved); else at all of them (an extended conductor, a
+// bend, another source, or the lines misplaced).
+func misfitAt(p *inverse.Problem, src []inverse.Source, rms float64) string {
+	m := readingsPerSensor(p)
+	all := rms * rms * float64(m*len(p.Points))
+	for k := range p.Points {
+		q := &inverse.Problem{Sigma: p.Sigma}
+		for i := range p.Points {
+			if i == k {
+				continue
+			}
+			q.Points = append(q.Points, p.Points[i])
+			if p.Fields != nil {
+				q.Fields = append(q.Fields, p.Fields[i])
+			}
+			if p.Phasors != nil {
+				q.Phasors = append(q.Phasors, p.Phasors[i])
+			}
+		}
+		r, err := inverse.FitStrengths(q, src, nil)
+		if err != nil || r.DOF <= 0 {
+			continue
+		}
+		if rest := r.RMS * r.RMS * float64(m*len(q.Points)); rest <= 0.1*all {
+			pt := p.Points[k]
+			return fmt.Sprintf(" (the misfit is at the sensor at [%g, %g, %g]: without it they miss by %.3g nT RMS; its position or orientation in the site file is likely wrong, or it was moved)", pt[0], pt[1], pt[2], r.RMS)
+		}
+	}
+	return " (an extended conductor such as a flat bar close to the sensors, a bend, or another source near the sensors; or a sensor's position or orientation in the site file wrong)"
 }
 
 // misfitError is commissionMisfit's refusal.

@@ -8,8 +8,8 @@ import (
 )
 
 // A window that fails its own chi-square test does not keep the
-// noise-only sigmas: one sensor's clock 1 ms ahead of the other four (a
-// gateway offset) shifts its phases by 18 degrees at 50 Hz, and the fit
+// noise-only sigmas: two sensors' clocks 1 ms ahead of and behind the
+// other three (gateway offsets) shift their phases by 18 degrees at 50 Hz, and the fit
 // of 200 A go and return (simulated truth, the inverse package's forward
 // model) then misses the currents by about 1 % and the phases by several
 // degrees. The window is "degraded" and its sigmas are widened by the
@@ -21,9 +21,14 @@ func TestDegradedWindowSigmasCoverMisfit(t *testing.T) {
 	truth := []complex128{cmplx.Rect(200, 20*math.Pi/180), cmplx.Rect(200, -160*math.Pi/180)}
 	rng := rand.New(rand.NewPCG(10, 1))
 	w := synthWindow(a, truth, [3]float64{}, 1796279400, 500, 500, a.Noise, rng)
-	ahead := &w.Sensors[len(w.Sensors)-1]
-	for i := range ahead.T {
-		ahead.T[i] += 0.001
+	// Two sensors 1 ms out, one ahead and one behind: no one sensor
+	// carries the misfit, so none is left out as inconsistent (isolate)
+	// and the window is solved with all, degraded.
+	for k, dt := range map[int]float64{len(w.Sensors) - 1: 0.001, 0: -0.001} {
+		s := &w.Sensors[k]
+		for i := range s.T {
+			s.T[i] += dt
+		}
 	}
 	e, alarms := p.solve(w, p.reduce(w))
 	if e.Quality != "degraded" {

@@ -167,8 +167,11 @@ const (
 	// AlarmDataLost: the broker removed data (data_retention,
 	// data_max_bytes) before the asset's worker read it.
 	AlarmDataLost = "data-lost"
+	// AlarmCommissioning: an asset's commissioning stopped for good (the
+	// asset's endpoint shows it as stopped), saying why.
+	AlarmCommissioning = "commissioning"
 )
 
 // AlarmKinds lists every alarm kind the service raises; the alarms API
 // refuses any other kind.
-var AlarmKinds = []string{AlarmOverCurrent, AlarmImbalance, AlarmStep, AlarmSilent, AlarmStuck, AlarmSaturated, AlarmDegraded, AlarmImplausible, AlarmDataLost}
+var AlarmKinds = []string{AlarmOverCurrent, AlarmImbalance, AlarmStep, AlarmSilent, AlarmStuck, AlarmSaturated, AlarmDegraded, AlarmImplausible, AlarmDataLost, AlarmInconsistent, AlarmCommissioning}

@@ -222,6 +222,11 @@ type AssetInfo struct {
 	// is stopped until the site file is mended and serve restarted (a
 	// commissioning the readings cannot do without more in the site file).
 	Stopped string `json:"stopped,omitempty"`
+	// Commissioning, when this worker holds a "commission" asset not yet
+	// commissioned because the readings do not resolve its conductors'
+	// fields (their currents off, or too small), says so: "waiting for
+	// current: ...". Its windows are held until the current flows.
+	Commissioning string `json:"commissioning,omitempty"`
 	// Geometry is the geometry a "commission" asset holds, once
 	// commissioned: each conductor's point, direction, depth and azimuth
 	// with their sigmas from the commissioning fit.
@@ -247,6 +252,9 @@ func (s *Service) assetInfo(ctx context.Context, a *AssetConfig) (AssetInfo, err
 	ai.Restart = req
 	if v, ok := s.stopped.Load(a.Name); ok {
 		ai.Stopped = v.(string)
+	}
+	if v, ok := s.waiting.Load(a.Name); ok {
+		ai.Commissioning = v.(string)
 	}
 	if a.Model == "commission" {
 		e, err := s.stores.State.Get(ctx, geometryKey(a.Name))

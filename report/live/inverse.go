@@ -6,6 +6,7 @@ import (
 	"gonum.org/v1/gonum/mat"
 	"math"
 	"math/cmplx"
+	"strings"
 
 	"undercurrent/inverse"
 )
@@ -230,7 +231,25 @@ type InverseCommissioner struct{}
 // minPairDeltaChi2): the readings of a go-and-return pair with a third
 // conductor can be matched about as well by lines far from where the
 // cores run, with currents ten times too small.
-func (InverseCommissioner) Commission(in *SolveInput, stated []ConductorConfig) ([]ConductorConfig, error) {
+//
+// The geometry returned is one the readings resolve (resolved): lines
+// fitted to readings in which no conductor's field stands out of the
+// noise (the currents off) are refused with an unresolvedError, which the
+// worker meets by waiting for windows with current.
+func (c InverseCommissioner) Commission(in *SolveInput, stated []ConductorConfig) ([]ConductorConfig, error) {
+	conds, err := c.fit(in, stated)
+	if err != nil {
+		return nil, err
+	}
+	if err := resolved(in, conds); err != nil {
+		return nil, err
+	}
+	return conds, nil
+}
+
+// fit is Commission without the check that the readings resolve the
+// geometry.
+func (InverseCommissioner) fit(in *SolveInput, stated []ConductorConfig) ([]ConductorConfig, error) {
 	p := &inverse.Problem{Points: in.Points, Fields: in.Fields, Phasors: in.Phasors, Sigma: in.Sigma}
 	res, err := inverse.FitLines(p, &inverse.Settings{Count: len(stated)})
 	if err == nil && res.DOF <= 0 {
@@ -261,6 +280,24 @@ func (InverseCommissioner) Commission(in *SolveInput, stated []ConductorConfig) 
 			return nil, fmt.Errorf("%w (fitted from the site file's points: %v)", err, aerr)
 		}
 		return conds, nil
+	}
+	var mis *misfitError
+	if len(stated) == 1 && errors.As(err, &mis) {
+		// One line without its point that the free fit puts where it
+		// misses the readings: the fit from a few plain starts under the
+		// sensors may find a better one (the free fit of a line near the
+		// sensors can stop far from it).
+		var start [3]float64
+		if res != nil && len(res.Sources) > 0 {
+			start = res.Sources[0].Dir
+		}
+		if alt, aerr := seededLine(p, in, stated[0].Name, start); aerr == nil {
+			if merr := commissionMisfit(p, in.WindowSigma, alt); merr == nil {
+				return alt, nil
+			} else if clearlyBetter(in, alt, conds) {
+				err = merr
+			}
+		}
 	}
 	var site *needsSiteError
 	if err != nil && len(stated) > 1 && !errors.As(err, &site) {
@@ -312,4 +349,182 @@ func readingsPerSensor(p *inverse.Problem) int {
 		return 6
 	}
 	return 3
+}
+
+// minLineDeltaChi2 is the least rise of the commissioning fit's
+// chi-square when any one of its lines is left out (the others and the
+// background fitted again) for the geometry to be taken as resolved:
+// each line's field must stand out of the readings' noise by about ten
+// sigma. A line fitted to pure noise lowers the chi-square by what its
+// five free parameters (place, direction, current) can take from the
+// noise, a chi-square with about five degrees of freedom, above 100 with
+// a probability near 1e-19 (the likelihood-ratio test, Wilks 1938).
+const minLineDeltaChi2 = 100
+
+// maxPlaceSigmaRatio and maxAzimuthSigmaDeg bound the one-sigma errors of
+// a resolved commissioned line (geometryCovariance): its place across
+// the line within this fraction of its mean distance from the sensors,
+// its bearing within this many degrees. Beyond them the fit does not say
+// where the line runs, whatever its chi-square.
+const (
+	maxPlaceSigmaRatio = 0.5
+	maxAzimuthSigmaDeg = 30
+)
+
+// unresolvedError is a commissioning fit whose conductors' fields the
+// readings do not resolve (their currents off, or too small for the
+// noise): readings with current would mend it.
+type unresolvedError struct{ err error }
+
+func (e *unresolvedError) Error() string { return e.err.Error() }
+func (e *unresolvedError) Unwrap() error { return e.err }
+
+// resolved refuses, with an unresolvedError, conductors conds fitted to
+// the commissioning readings in whose fields do not stand out of the
+// noise: a line whose leaving out raises the chi-square by less than
+// minLineDeltaChi2 (against the readings' sigmas, or with none given the
+// fit's own residual variance), or whose place or bearing has a sigma
+// beyond maxPlaceSigmaRatio or maxAzimuthSigmaDeg.
+func resolved(in *SolveInput, conds []ConductorConfig) error {
+	n := len(in.Points)
+	sig := in.Sigmas
+	if len(sig) != n {
+		s := in.Sigma
+		if !(s > 0) {
+			s = 1
+		}
+		sig = make([]float64, n)
+		for i := range sig {
+			sig[i] = s
+		}
+	}
+	chi2 := func(cs []ConductorConfig) (float64, int, error) {
+		e := &inverseEstimator{}
+		for _, c := range cs {
+			e.sources = append(e.sources, inverse.Line{Point: c.Point, Dir: c.Direction})
+		}
+		A, Y, _, err := e.weightedSystem(in, sig)
+		if err != nil {
+			return 0, 0, err
+		}
+		var qr mat.QR
+		qr.Factorize(A)
+		var coef, pred mat.Dense
+		if err := qr.SolveTo(&coef, false, Y); err != nil {
+			return 0, 0, err
+		}
+		pred.Mul(A, &coef)
+		m, nr := Y.Dims()
+		_, q := A.Dims()
+		var s float64
+		for i := range m {
+			for k := range nr {
+				r := Y.At(i, k) - pred.At(i, k)
+				s += r * r
+			}
+		}
+		return s, (m - q) * nr, nil
+	}
+	all, dof, err := chi2(conds)
+	if err != nil {
+		return nil // not judged here: the windows' solve will say
+	}
+	scale := 1.0 // the readings' variance in units of sig^2
+	known := len(in.Sigmas) == n || in.Sigma > 0
+	if !known && dof > 0 {
+		scale = all / float64(dof)
+	}
+	var weak []string
+	for k, c := range conds {
+		rest := append(append([]ConductorConfig(nil), conds[:k]...), conds[k+1:]...)
+		without, _, err := chi2(rest)
+		if err != nil {
+			continue
+		}
+		if d := (without - all) / scale; !(d >= minLineDeltaChi2) {
+			weak = append(weak, fmt.Sprintf("%s (its field lowers the chi-square by %.3g, against %d needed)", c.Name, d, minLineDeltaChi2))
+		}
+	}
+	if len(weak) > 0 {
+		return &unresolvedError{fmt.Errorf("the commissioning readings do not resolve the field of %s: the currents are off or too small for the noise; a geometry fitted to them would be the noise's", strings.Join(weak, ", "))}
+	}
+	unc, err := geometryCovariance(in, conds)
+	if err != nil || unc == nil {
+		return nil
+	}
+	var sensors []SensorConfig
+	for _, pt := range in.Points {
+		sensors = append(sensors, SensorConfig{Position: pt})
+	}
+	pub := publishedGeometry(&storedGeometry{Conductors: conds, Uncertainty: unc}, sensors)
+	for i, pc := range pub.Conductors {
+		if pc.PointSigmaM == nil {
+			continue
+		}
+		d := unit(conds[i].Direction)
+		var dist float64
+		for _, pt := range in.Points {
+			dist += norm(perp(sub(pt, conds[i].Point), d)) / float64(len(in.Points))
+		}
+		ps := norm(*pc.PointSigmaM)
+		if ps > maxPlaceSigmaRatio*dist || *pc.AzimuthSigmaDeg > maxAzimuthSigmaDeg {
+			weak = append(weak, fmt.Sprintf("%s (depth %.3g m, place +- %.3g m, %.3g m from the sensors on average; bearing +- %.3g degrees)", pc.Name, pc.DepthM, ps, dist, *pc.AzimuthSigmaDeg))
+		}
+	}
+	if len(weak) > 0 {
+		return &unresolvedError{fmt.Errorf("the commissioning readings do not fix where %s run: the currents are off or too small for the noise", strings.Join(weak, ", "))}
+	}
+	return nil
+}
+
+// seededLine fits one line, named name, to the readings of p from plain
+// starts (commissionFromPoints from a point, along start when given, and
+// along north and east): at the sensors' centroid and at 0.5, 1, 2 and 4
+// times their spread below it. It returns the fit that misses the
+// readings least.
+func seededLine(p *inverse.Problem, in *SolveInput, name string, start [3]float64) ([]ConductorConfig, error) {
+	var c [3]float64
+	for _, pt := range p.Points {
+		c = add(c, scale(pt, 1/float64(len(p.Points))))
+	}
+	var spread float64
+	for _, pt := range p.Points {
+		d := sub(pt, c)
+		spread += dot(d, d) / float64(len(p.Points))
+	}
+	spread = math.Sqrt(spread)
+	dirs := [][3]float64{{0, 1, 0}, {1, 0, 0}}
+	if norm(start) > 0 {
+		dirs = append([][3]float64{start}, dirs...)
+	}
+	var best []ConductorConfig
+	var bestRMS float64
+	var lastErr error
+	for _, f := range []float64{0, 0.5, 1, 2, 4} {
+		pt := sub(c, [3]float64{0, 0, f * spread})
+		for _, d := range dirs {
+			conds, err := commissionFromPoints(p, []ConductorConfig{{Name: name, Point: pt, pointSet: true}}, d)
+			if err != nil {
+				lastErr = err
+				continue
+			}
+			est, err := NewInverseEstimator("", conds)
+			if err != nil {
+				lastErr = err
+				continue
+			}
+			out, err := est.Solve(in)
+			if err != nil {
+				lastErr = err
+				continue
+			}
+			if best == nil || out.RMS < bestRMS {
+				best, bestRMS = conds, out.RMS
+			}
+		}
+	}
+	if best == nil {
+		return nil, lastErr
+	}
+	return best, nil
 }

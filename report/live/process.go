@@ -89,6 +89,11 @@ type reduced struct {
 	// calibrated field|, nT (the static field: a sine over whole cycles
 	// averages out).
 	totals []float64
+	// counts are the used sensors' sample counts, and scatter the
+	// one-sigma of their DC window means from their samples' own scatter
+	// (sampleScatter; nil for AC), in the order of used.
+	counts  []int
+	scatter []float64
 	// spikes counts, per sensor, the readings left out of a DC window's
 	// mean (despikeDC) or an AC window's demodulation (acSpikes, despikeACWindow) as
 	// spikes; nil when none.
@@ -253,6 +258,7 @@ func (p *processor) reduce(w *window) *reduced {
 				e[row] = R[row][0]*m[0] + R[row][1]*m[1] + R[row][2]*m[2]
 			}
 			r.in.Fields = append(r.in.Fields, e)
+			r.scatter = append(r.scatter, sampleScatter(d.bx, d.by, d.bz))
 		}
 		r.totals = append(r.totals, math.Sqrt(mean(d.bx)*mean(d.bx)+mean(d.by)*mean(d.by)+mean(d.bz)*mean(d.bz)))
 		n := len(d.t)
@@ -261,6 +267,7 @@ func (p *processor) reduce(w *window) *reduced {
 		r.samples += n
 		ns = append(ns, n)
 	}
+	r.counts = ns
 	if a.Noise > 0 && len(ns) > 0 {
 		// Noise of a mean of n samples (DC) or of each quadrature of a
 		// sine fit over n samples (AC): sigma / sqrt(n), each sensor with
@@ -412,25 +419,69 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 		}
 		return p.failed(w, e, r.alarms, msg)
 	}
+	// The fit judged against the noise: the stated one, or with noise = 0
+	// the readings' own scatter within the window (judged).
+	// A commissioned geometry's error is in the sigmas: the misfit it is
+	// expected to give (Chi2Geometry) is no sign of a poor fit.
+	judge := func(r *reduced, out *SolveOutput) float64 {
+		jred := math.NaN()
+		e.Chi2Geometry = 0
+		if a.Noise > 0 {
+			if out.DOF > 0 {
+				jred = out.Chi2 / float64(out.DOF)
+				if jred > a.Alarms.MaxChi2 && len(p.shifts) > 0 {
+					e.Chi2Geometry = p.geometryChi2(&r.in, out.Chi2)
+					jred = out.Chi2 / (float64(out.DOF) + e.Chi2Geometry)
+				}
+			}
+		} else if jin, ok := p.judged(r); ok {
+			jred = p.reducedChi2(jin)
+		}
+		return jred
+	}
+	jred := judge(r, out)
+	if jred > a.Alarms.MaxChi2 {
+		// A sensor the others contradict (knocked round, moved, its
+		// offset changed) is left out, named, and the window solved with
+		// the rest.
+		if sub, bad, why := p.isolate(r); sub != nil {
+			if o2, err2 := p.est.Solve(&sub.in); err2 == nil && len(o2.Current) == len(p.names) && nonFiniteOutput(o2) == "" {
+				r, out = sub, o2
+				for k, name := range bad {
+					r.missing[name] = "inconsistent with the other sensors' readings (knocked, moved, or its offset changed?): " + why[k]
+					alarms = append(alarms, p.alarm(w, AlarmInconsistent, name, 0, a.Alarms.MaxChi2,
+						fmt.Sprintf("sensor %s's reading is inconsistent with the other sensors': %s; the window is solved without it. Check the sensor (turned or moved on its mount, offset drift)", name, why[k])))
+				}
+				e.Missing, e.Sensors, e.Samples = r.missing, len(r.used), r.samples
+				jred = judge(r, out)
+			}
+		}
+	}
 	e.RMS, e.Chi2, e.DOF, e.Background = out.RMS, out.Chi2, out.DOF, out.Background
 	e.Quality = "good"
 	// scale widens a degraded window's sigmas by its misfit (see
 	// Estimate.SigmaScale).
 	scale := 1.0
-	degraded := out.DOF > 0 && out.Chi2/float64(out.DOF) > a.Alarms.MaxChi2
-	if degraded && len(p.shifts) > 0 {
-		// The commissioned geometry's error is in the sigmas: the
-		// misfit it is expected to give is no sign of a poor fit.
-		e.Chi2Geometry = p.geometryChi2(&r.in, out.Chi2)
-		degraded = out.Chi2/(float64(out.DOF)+e.Chi2Geometry) > a.Alarms.MaxChi2
-	}
-	if degraded {
+	if jred > a.Alarms.MaxChi2 {
 		e.Quality = "degraded"
-		scale = math.Sqrt(out.Chi2 / float64(out.DOF))
-		e.SigmaScale = scale
-		alarms = append(alarms, p.alarm(w, AlarmDegraded, "", out.Chi2/float64(out.DOF), a.Alarms.MaxChi2,
-			fmt.Sprintf("reduced chi-square %.3g above %.3g: the readings miss the held geometry by %.3g times the stated noise; the window's sigmas are widened by that factor",
-				out.Chi2/float64(out.DOF), a.Alarms.MaxChi2, scale)))
+		worst := ""
+		if s := p.worstSensors(r); s != "" {
+			worst = "; the sensors whose leaving out lowers the chi-square most: " + s
+		}
+		const model = "; a misfit spread over several sensors points to a conductor the thin-line model does not describe (a flat bar, a bend or another source close to the sensors: a line's field differs from a strip's of width w at distance d by about (w/d)^2/12) or to a wrong geometry, one at a single sensor to that sensor (moved, turned, its offset changed)"
+		if a.Noise > 0 {
+			scale = math.Sqrt(jred)
+			e.SigmaScale = scale
+			alarms = append(alarms, p.alarm(w, AlarmDegraded, "", jred, a.Alarms.MaxChi2,
+				fmt.Sprintf("reduced chi-square %.3g above %.3g: the readings miss the held geometry by %.3g times the stated noise; the window's sigmas are widened by that factor%s%s",
+					jred, a.Alarms.MaxChi2, scale, worst, model)))
+		} else {
+			// The sigmas already come from the residuals (noise = 0): not
+			// widened again, but the model's error is not noise.
+			alarms = append(alarms, p.alarm(w, AlarmDegraded, "", jred, a.Alarms.MaxChi2,
+				fmt.Sprintf("the readings miss the held geometry by %.3g times their own scatter within the window (reduced chi-square %.3g above %.3g against it): with noise = 0 the sigmas come from the fit's residuals, which take the model's error for noise, so they understate it%s%s",
+					math.Sqrt(jred), jred, a.Alarms.MaxChi2, worst, model)))
+		}
 	}
 	if e.Quality == "good" && len(r.missing) > 0 {
 		e.Quality = "partial" // a sensor short of samples or left out: see Missing

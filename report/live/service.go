@@ -68,6 +68,10 @@ type Service struct {
 	// stopped holds, per asset this worker has stopped for want of a
 	// site file that says more (a commissioning needsSiteError), why.
 	stopped sync.Map
+	// waiting holds, per "commission" asset this worker holds that waits
+	// for its conductors' currents to flow before it can be commissioned,
+	// why.
+	waiting sync.Map
 
 	mu   sync.Mutex
 	held map[string]*holding

@@ -74,6 +74,13 @@ type assetWorker struct {
 	// commissioning: windows waiting for the geometry.
 	pending []*window
 	pendDur float64
+	// pendReds are the held windows' reduced readings, in their order;
+	// misfits counts the commissioning fits in a row that failed other
+	// than for want of current; waiting says the asset waits for current
+	// to commission (Service.waiting).
+	pendReds []*reduced
+	misfits  int
+	waiting  bool
 	// lastData is the wall time of the last batch filed or held (or of
 	// taking the asset); silent says the asset's silent alarm is raised.
 	lastData time.Time
@@ -145,6 +152,7 @@ func (s *Service) newAssetAssembler(a *AssetConfig) *assembler {
 // published and the checkpoint is written.
 func (w *assetWorker) run(ctx context.Context) error {
 	defer w.svc.met.dataLag.forget(w.asset.Name)
+	defer w.svc.waiting.Delete(w.asset.Name)
 	w.ctx = ctx
 	// lctx ends only when the processing must stop at once (see fenced),
 	// so that a broker call waiting for an answer gives up then too.
