@@ -1709,6 +1709,9 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 			alerts = append(alerts, w)
 		}
 	}
+	if w := splitGroupsWarning(sv); w != "" {
+		alerts = append(alerts, w)
+	}
 	if sv.swings != nil {
 		sv.swings.fitted(sv.groups)
 		if w := sv.swings.warning(); w != "" {
