@@ -93,3 +93,28 @@ func tooLargeByUnit(bx, by, bz []float64) string {
 	}
 	return ""
 }
+
+// earthLogUnit refuses a spin or flip log (the Earth's field turned
+// through the sensor) whose median |B| read as nT is the Earth's band
+// divided by 1000 or 100 000: its field columns are in uT or gauss, and a
+// calibration made from it would hold offsets and a reference that many
+// times too small, which locate then applied to logs in nT. Before, such
+// a log drew only the band warning and the calibration was written, and
+// locate later blamed "another sensor, or far from this site" (found in
+// review). --unit, which the caller checks, overrides.
+func earthLogUnit(path string, s *ingest.Samples) error {
+	m, ok := medianMagnitude(s.Bx, s.By, s.Bz)
+	if !ok {
+		return nil
+	}
+	for _, u := range []struct {
+		f    float64
+		name string
+	}{{1e3, "uT"}, {1e5, "G"}} {
+		if v := m * u.f; v >= earthMinNT && v <= earthMaxNT {
+			return fmt.Errorf("%s: median |B| is %.4g nT as read, but a spin or flip log holds the Earth's field, %.0f-%.0f nT: read in %s it is %.0f nT, so its field columns are probably in %s. A calibration made from it would hold offsets and a reference %g times too small, applied by locate to logs in nT. Refused: give the unit with --unit bx=%s,by=%s,bz=%s (or --unit bx=nT,by=nT,bz=nT if nT is right)",
+				path, m, earthMinNT, earthMaxNT, u.name, v, u.name, u.f, u.name, u.name, u.name)
+		}
+	}
+	return nil
+}
