@@ -95,6 +95,14 @@ func (c *Calibration) Check(s *ingest.Samples) []string {
 		return warns
 	}
 	if d := (med - c.Reference) / c.Reference; math.Abs(d) > MaxReferenceMismatch {
+		// A factor of about 1000 (or 1e5) is a unit slip, not another
+		// sensor: before, a spin calibration made from a log in uT read
+		// as nT was blamed on "another sensor, or far from this site"
+		// (found in review).
+		if w, ok := unitSlipWording(med, c.Reference); ok {
+			warns = append(warns, fmt.Sprintf("%s: median |B| after the calibration is %.0f nT, %s", source(s), med, w))
+			return warns
+		}
 		warns = append(warns, fmt.Sprintf("%s: median |B| after the calibration is %.0f nT, %+.1f%% from the %.0f nT the calibration was made in (more than the %.0f%% the Earth's field changes over a site and a day): was the calibration made for another sensor, or far from this site?", source(s), med, 100*d, c.Reference, 100*MaxReferenceMismatch))
 	}
 	return warns

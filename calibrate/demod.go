@@ -72,6 +72,12 @@ type DemodSettings struct {
 	// own noise (the package documentation); Window.FreqSigma carries each
 	// estimate's one-sigma.
 	EstimateFreq bool
+	// SkipFailedFreq, with EstimateFreq, leaves out a window whose
+	// four-parameter fit fails (its frequency runs off to zero or below,
+	// or its frequency column is degenerate, as where the field runs far
+	// from Freq) instead of failing the whole demodulation;
+	// DemodResult.FreqFailed counts them.
+	SkipFailedFreq bool
 	// Window is the window length, s. Zero means ten cycles of Freq.
 	Window float64
 	// Step is the hop between window starts, s. Zero means Window (no
@@ -172,6 +178,9 @@ type DemodResult struct {
 	Quantum *ingest.TimeQuantum
 	// Dropped counts samples that fell in no full window (run tails).
 	Dropped int
+	// FreqFailed counts the windows left out because their four-parameter
+	// fit failed (DemodSettings.SkipFailedFreq).
+	FreqFailed int
 	// Losses lists, per group, the windows lost to breaks in the time
 	// column (DemodLoss), in the order the groups first appear; only
 	// groups that lost a window are listed. A warning says the same.
@@ -563,14 +572,21 @@ func DemodulateColumns(c *Columns, set *DemodSettings) (*DemodResult, error) {
 	for i, r := range runs {
 		first := len(res.Windows)
 		end := r.lo
+		failed := 0
 		for lo := r.lo; lo+N <= r.hi; lo += hop {
 			if err := d.window(lo, lo+N); err != nil {
-				return nil, err
+				var ff *freqFitFailed
+				if !(ds.SkipFailedFreq && errors.As(err, &ff)) {
+					return nil, err
+				}
+				res.FreqFailed++
+				failed++
 			}
 			end = lo + N
 		}
 		res.Dropped += r.hi - end
-		got[i] = len(res.Windows) - first
+		// A window whose frequency fit failed is not lost to a break.
+		got[i] = len(res.Windows) - first + failed
 		if !ds.EstimateFreq {
 			d.phaseDrift(res.Windows[first:])
 		}
@@ -1149,6 +1165,13 @@ func (d *demodulator) uniform(lo, hi int) bool {
 	return true
 }
 
+// freqFitFailed is a window's failed four-parameter fit, which
+// DemodSettings.SkipFailedFreq leaves out.
+type freqFitFailed struct{ err error }
+
+func (e *freqFitFailed) Error() string { return e.err.Error() }
+func (e *freqFitFailed) Unwrap() error { return e.err }
+
 // window demodulates rows [lo, hi) and appends the result.
 func (d *demodulator) window(lo, hi int) error {
 	c, set := d.c, d.set
@@ -1193,7 +1216,11 @@ func (d *demodulator) window(lo, hi int) error {
 		// frequency, one frequency shared by the three axes.
 		f, _, q, err := d.fit.fit(c.Time[lo:hi], set.Freq, 30)
 		if err != nil {
-			return fmt.Errorf("calibrate: demodulate: window at rows %d-%d (t = %s): %w", lo, hi-1, fmtTime(t0), err)
+			err = fmt.Errorf("calibrate: demodulate: window at rows %d-%d (t = %s): %w", lo, hi-1, fmtTime(t0), err)
+			if set.SkipFailedFreq {
+				return &freqFitFailed{err}
+			}
+			return err
 		}
 		fitQ = q
 		w.Freq = f

@@ -813,6 +813,12 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 	for _, h := range [][]int{harm, nil} {
 		set := pl.settings(o.freq, win, h)
 		set.EstimateFreq = true
+		// A window whose frequency fit fails (diverges, or its frequency
+		// column is degenerate, as where the field runs far from --freq)
+		// is left out and the rest judged: before, one such window gave up
+		// the check for the whole log, and --freq 60 on a 50 Hz site went through unchecked with
+		// the default window (found in review).
+		set.SkipFailedFreq = true
 		set.Step = checkStep(len(res.Windows), win)
 		fit, err = calibrate.Demodulate(s, set)
 		if err == nil {
@@ -826,7 +832,11 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 	}
 	est, ok := estimateWindowFreq(fit.Windows, win)
 	if !ok {
-		return res, win, append(res.Warnings, uncheckedWarning(fit.Windows, o.freq)), nil, nil
+		w := uncheckedWarning(fit.Windows, o.freq)
+		if fit.FreqFailed > 0 {
+			w += fmt.Sprintf(" (the frequency fits of %d more windows failed, as where the field runs far from %g Hz: check --freq)", fit.FreqFailed, o.freq)
+		}
+		return res, win, append(res.Warnings, w), nil, nil
 	}
 	off := est.freq - o.freq
 	span := longestGroupSpan(res.Windows, win)

@@ -62,7 +62,8 @@ input flags as the other commands (--column, --unit, --delimiter, ...); only
 bx, by, bz are used, in the sensor's own axes, and a log needs no time
 column. A spin or flip log whose median |B| is far from the Earth's field
 gets a warning (a unit is probably wrong), and one impossibly far (below
-1 pT or above 0.1 T) is refused unless --unit gives the field's unit.
+1 pT or above 0.1 T), or 1000 or 100000 times below it (uT or gauss read
+as nT), is refused unless --unit gives the field's unit.
 
 In the examples, spin.csv and cal.json are the spin log and the
 calibration of the walk-through in README.md; the logs in
@@ -349,6 +350,11 @@ func readCalibrationLog(ctx context.Context, rf *readFlags, opts []ingest.Option
 	s, rows, warns, err := rf.readLogRows(ctx, path, opts, checkUnits)
 	if err != nil {
 		return nil, calibrate.Input{}, nil, err
+	}
+	if checkUnits && !rf.fieldUnitGiven() {
+		if err := earthLogUnit(path, s); err != nil {
+			return nil, calibrate.Input{}, nil, err
+		}
 	}
 	// A log whose own "# undercurrent.frame: ned" line turned it to east,
 	// north, up: the calibration would be made in the turned axes, and

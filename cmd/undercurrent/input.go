@@ -479,7 +479,7 @@ func (f *readFlags) readLogRows(ctx context.Context, path string, opts []ingest.
 			return nil, nil, nil, err
 		}
 		if w != "" {
-			warns = append(warns, w)
+			warns = append(warns, w+tooLargeByUnit(s.Bx, s.By, s.Bz))
 		}
 	}
 	return s, rows, warns, nil

@@ -675,6 +675,15 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			if err := checkBaseNotSurvey(o.base, base, path, s); err != nil {
 				return nil, err
 			}
+			if !o.coil.on() {
+				w, err := checkSurveyBaseUnits(o, base, path, s)
+				if err != nil {
+					return nil, err
+				}
+				if w != "" {
+					sv.alerts = append(sv.alerts, w)
+				}
+			}
 			// --frame does not reach the base log: one that states no
 			// frame is read as east, north, up beside a survey in NED.
 			if s.InFrame == ingest.FrameNED && !base.InFrameStated && !baseFrameWarned {
@@ -1724,6 +1733,9 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 		if w := spanWarning(sv); w != "" {
 			alerts = append(alerts, w)
 		}
+	}
+	if w := splitGroupsWarning(sv); w != "" {
+		alerts = append(alerts, w)
 	}
 	if sv.swings != nil {
 		sv.swings.fitted(sv.groups)

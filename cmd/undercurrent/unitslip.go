@@ -1,0 +1,120 @@
+package main
+
+import (
+	"fmt"
+	"strings"
+
+	"undercurrent/calibrate"
+	"undercurrent/ingest"
+)
+
+// checkSurveyBaseUnits compares the median |B| of a survey log with the
+// base record's: one site's field differs between the two by far less
+// than the Earth's band (a few hundred nT at most), so a ratio near 1000
+// or 100 000 (calibrate.UnitSlip) is a unit read as another. The side
+// outside the Earth's band is the one in the wrong unit. Before, a survey
+// in uT with a base in nT ran to "7 sound" at 0.024 A with warnings
+// blaming close conductors or an object, and an nT survey declared as uT
+// to "7 sound" at 25 000 A (found in review). It returns an error (the
+// run is refused) when the survey's unit is the wrong one, or the base's
+// unit was not given; a warning when --base-unit gave the base's unit
+// (a record of variations only may sit outside the band).
+func checkSurveyBaseUnits(o *locateOptions, base *ingest.Samples, path string, s *ingest.Samples) (string, error) {
+	ms, ok1 := medianMagnitude(s.Bx, s.By, s.Bz)
+	mb, ok2 := medianMagnitude(base.Bx, base.By, base.Bz)
+	if !ok1 || !ok2 || !(mb > 0) {
+		return "", nil
+	}
+	factor, larger, unit, ok := calibrate.UnitSlip(ms / mb)
+	if !ok {
+		return "", nil
+	}
+	inBand := func(m float64) bool { return m >= earthMinNT && m <= earthMaxNT }
+	rel := fmt.Sprintf("%.4g times", ms/mb)
+	if !larger {
+		rel = fmt.Sprintf("1/%.4g of", mb/ms)
+	}
+	lead := fmt.Sprintf("%s: median |B| is %.4g nT as read, %s the base record's %.4g nT (%s): a factor of %g between a survey and its base station is a unit read as another, not the site (the Earth's field differs by far less over a survey)", path, ms, rel, mb, o.base, factor)
+	switch {
+	case !inBand(ms) && inBand(mb):
+		given := o.read.fieldUnitGiven()
+		var cause, fix, how string
+		switch {
+		case !larger:
+			cause = fmt.Sprintf("the survey's field columns are probably in %s read as nT", unit)
+			fix = fmt.Sprintf("give their unit with --unit bx=%s,by=%s,bz=%s", unit, unit, unit)
+			how = "small"
+		case given:
+			cause = "the survey's field columns are probably in nT, not the unit given with --unit"
+			fix = "give --unit bx=nT,by=nT,bz=nT (or leave --unit out)"
+			how = "large"
+		default:
+			cause = fmt.Sprintf("the survey's field columns are in a unit %g times smaller than nT read as nT", factor)
+			fix = "give their unit with --unit bx=U,by=U,bz=U"
+			how = "large"
+		}
+		return "", fmt.Errorf("%s: %s, and every current would come out %g times too %s. Refused: %s", lead, cause, factor, how, fix)
+	case inBand(ms) && !inBand(mb):
+		cause := fmt.Sprintf("the base log's field columns are probably in %s read as nT (--base-unit bx=%s,by=%s,bz=%s)", unit, unit, unit, unit)
+		if !larger {
+			cause = fmt.Sprintf("the base log's field columns are in a unit %g times smaller than the one read (give it with --base-unit)", factor)
+		}
+		baseGiven := false
+		for _, u := range o.baseUnits {
+			for _, p := range strings.Split(u, ",") {
+				if k, _, _ := strings.Cut(p, "="); fieldAxis(k) >= 0 {
+					baseGiven = true
+				}
+			}
+		}
+		if baseGiven {
+			return fmt.Sprintf("%s: %s, unless it records only the field's variations", lead, cause), nil
+		}
+		return "", fmt.Errorf("%s: %s, and the base correction would be %g times off. Refused", lead, cause, factor)
+	}
+	return "", nil
+}
+
+// tooLargeByUnit adds to the Earth-field band warning of a survey log
+// whose median |B| is 1000 or 100 000 times the band (a field in nT read,
+// or declared with --unit, as uT or gauss): no log with the Earth's field
+// in it or removed reads so much, so the consequence is said plainly.
+// Before, an nT log declared as uT ran to "7 sound" at 25 000 A with only
+// the band warning (found in review).
+func tooLargeByUnit(bx, by, bz []float64) string {
+	m, ok := medianMagnitude(bx, by, bz)
+	if !ok {
+		return ""
+	}
+	for _, f := range []float64{1e3, 1e5} {
+		if v := m / f; v >= earthMinNT && v <= earthMaxNT {
+			return fmt.Sprintf(". Read so, the field is %g times the Earth's, and every current and anomaly below comes out %g times too large: check the unit before using any result", f, f)
+		}
+	}
+	return ""
+}
+
+// earthLogUnit refuses a spin or flip log (the Earth's field turned
+// through the sensor) whose median |B| read as nT is the Earth's band
+// divided by 1000 or 100 000: its field columns are in uT or gauss, and a
+// calibration made from it would hold offsets and a reference that many
+// times too small, which locate then applied to logs in nT. Before, such
+// a log drew only the band warning and the calibration was written, and
+// locate later blamed "another sensor, or far from this site" (found in
+// review). --unit, which the caller checks, overrides.
+func earthLogUnit(path string, s *ingest.Samples) error {
+	m, ok := medianMagnitude(s.Bx, s.By, s.Bz)
+	if !ok {
+		return nil
+	}
+	for _, u := range []struct {
+		f    float64
+		name string
+	}{{1e3, "uT"}, {1e5, "G"}} {
+		if v := m * u.f; v >= earthMinNT && v <= earthMaxNT {
+			return fmt.Errorf("%s: median |B| is %.4g nT as read, but a spin or flip log holds the Earth's field, %.0f-%.0f nT: read in %s it is %.0f nT, so its field columns are probably in %s. A calibration made from it would hold offsets and a reference %g times too small, applied by locate to logs in nT. Refused: give the unit with --unit bx=%s,by=%s,bz=%s (or --unit bx=nT,by=nT,bz=nT if nT is right)",
+				path, m, earthMinNT, earthMaxNT, u.name, v, u.name, u.f, u.name, u.name, u.name)
+		}
+	}
+	return nil
+}
