@@ -332,7 +332,11 @@ func turnWarning(what string, s, b [3]float64, angle, allow float64, basePath, w
 	// A vertical component of the other sign than the base's: no turn
 	// about the vertical undoes it.
 	if s[2]*b[2] < 0 && math.Abs(b[2]) > 0.2*norm(b) {
-		return msg + fmt.Sprintf(" Its vertical component (%.0f nT) has the other sign than the base's (%.0f nT): the sensor's z axis is reversed (mounted upside down, or a field logged with z down read as up), which no turn about the vertical undoes, so no --mount-yaw is offered; --field-axes says what each field column holds (e,s,d for a sensor upside down, n,e,d for a field logged north, east, down). Check how the sensor is mounted, the field columns' order and signs and its attitude reference", s[2], b[2])
+		fix := "--field-axes says what each field column holds (e,s,d for a sensor upside down, n,e,d for a field logged north, east, down)"
+		if ot != nil && !ot.enu {
+			fix = "for a sensor-frame log, read its columns as x forward, y right, z down"
+		}
+		return msg + fmt.Sprintf(" Its vertical component (%.0f nT) has the other sign than the base's (%.0f nT): the sensor's z axis is reversed (mounted upside down, or a field logged with z down read as up), which no turn about the vertical undoes, so no --mount-yaw is offered; %s. Check how the sensor is mounted, the field columns' order and signs and its attitude reference", s[2], b[2], fix)
 	}
 	if psi >= 0.5 {
 		yawFlag := mountYaw - dh
@@ -498,7 +502,7 @@ func (c *baseCheck) surveyLevel(sv *survey) *surveyField {
 // ones, at the wrong current and depth (a 25 A line at 1.1 m was "sound"
 // at -12.5 A and 0.40 m, found in review), so the sign is the one sign
 // of it.
-func upWarning(f *surveyField, origin *[2]float64, sv *survey, o *locateOptions) string {
+func upWarning(f *surveyField, origin *[2]float64) string {
 	if f == nil || len(f.e) == 0 {
 		return ""
 	}

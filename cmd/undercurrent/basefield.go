@@ -281,7 +281,7 @@ func (c *baseCheck) warnings(o *locateOptions, sv *survey) (alerts, warns []stri
 		f := c.surveyLevel(sv)
 		if c.base != nil {
 			alerts, compared = baseFieldWarnings(o.base, c.base, f, c.origin, c.cal, o.mountYaw, newOrientTest(o, sv, c.enu))
-		} else if w := upWarning(f, c.origin, sv, o); w != "" {
+		} else if w := upWarning(f, c.origin); w != "" {
 			alerts = append(alerts, w)
 		}
 	}
