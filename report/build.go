@@ -473,9 +473,29 @@ func sharedMisfit(fits []Fit, bs *BuildSettings, rs *route.Settings) string {
 		return fmt.Sprintf("%s, %.3g times the %.3g nT noise the readings themselves show and %.2g%% of the signal: the positions scatter from reading to reading by %.2g m, which alone makes about %.3g nT of misfit, most on the anomaly's flanks: scattered positions (satellite positioning jitter) are the likely cause, rather than conductors closer together than the fit can part; they flatten and widen the fitted anomaly, so depths read deep and currents high although the fits, measured against one another, may pass as sound; smooth the track or use corrected positions",
 			lead, m/nm, nm, 100*median(frac), sc, pm)
 	}
+	if m > axesMisfit*nm && median(frac) > axesMisfitShare {
+		// Every fit far off a strong field: the readings' axes are the
+		// likelier cause (a sensor turned a quarter turn on its mount
+		// missed by 360 times the noise and 28% of the signal on every
+		// traverse, and this warning named close conductors: found in
+		// review).
+		return fmt.Sprintf("%s, %.3g times the %.3g nT noise the readings themselves show and %.3g%% of the signal: the fitted lines do not describe this field, so positions, depths and currents mean nothing. A misfit this large on a strong field most often means the field's axes are read wrong: check the sensor's orientation and the field columns first (a sensor turned on its mount or upside down, two field columns swapped, an axis's sign reversed, a field logged north, east, down read as east, north, up; a base log beside the survey, --base, names the mistake), then conductors closer together than the fit can part or an object",
+			lead, m/nm, nm, 100*median(frac))
+	}
 	return fmt.Sprintf("%s, %.3g times the %.3g nT noise the readings themselves show and %.2g%% of the signal: the fitted lines do not describe this field (conductors closer together than the fit can part, such as the two cores of a pair, parallel circuits, or an object), so positions, depths and currents may be wrong although the fits, measured against one another, may pass as sound; confirm on site by other means",
 		lead, m/nm, nm, 100*median(frac))
 }
+
+// axesMisfit and axesMisfitShare are the median misfit, in multiples of
+// the readings' noise, and share of the signal beyond which sharedMisfit
+// names the field's axes before close conductors: a one-line fit of a
+// go-and-return pair misses by 74% of the signal but the pair's field is
+// a few nT to a few hundred, tens of times the noise; a turned sensor's
+// fits miss by hundreds of times it.
+const (
+	axesMisfit      = 100
+	axesMisfitShare = 0.2
+)
 
 // jitterShare is the least share of a group's misfit beyond its noise
 // (root-sum-square) that the scatter of its positions must make
@@ -540,7 +560,7 @@ func measuredMisfits(fits []Fit, bs *BuildSettings, rs *route.Settings) (n int, 
 			continue
 		}
 		n++
-		sig := signalRMS(res)
+		sig := fitSignal(res)
 		// An AC fit's RMS is of complex residuals; the windows' noise is
 		// per real component.
 		r := res.RMS
@@ -1337,6 +1357,79 @@ func signalRMS(res *inverse.Result) float64 {
 	}
 	return math.Sqrt(ss / float64(3*n))
 }
+
+// anomalyRMS is the RMS per component of the fitted sources' field about
+// its own mean over the group's readings, nT: the anomaly the readings
+// show, whatever uniform part the sources give.
+func anomalyRMS(res *inverse.Result) float64 {
+	var ss float64
+	n := 0
+	if len(res.Predicted) > 0 {
+		var m [3]float64
+		for _, p := range res.Predicted {
+			for j := range 3 {
+				m[j] += p[j]
+			}
+		}
+		for j := range 3 {
+			m[j] /= float64(len(res.Predicted))
+		}
+		for _, p := range res.Predicted {
+			for j := range 3 {
+				d := p[j] - m[j]
+				ss += d * d
+			}
+			n++
+		}
+	}
+	if len(res.PredictedPhasors) > 0 {
+		var m [3]complex128
+		for _, p := range res.PredictedPhasors {
+			for j := range 3 {
+				m[j] += p[j]
+			}
+		}
+		for j := range 3 {
+			m[j] /= complex(float64(len(res.PredictedPhasors)), 0)
+		}
+		for _, p := range res.PredictedPhasors {
+			for j := range 3 {
+				d := p[j] - m[j]
+				ss += real(d)*real(d) + imag(d)*imag(d)
+			}
+			n++
+		}
+	}
+	if n == 0 {
+		return 0
+	}
+	return math.Sqrt(ss / float64(3*n))
+}
+
+// fitSignal is the signal a fit's misfit is measured against
+// (measuredMisfits): the sources' field about the background
+// (signalRMS), or, when most of that is uniform over the group, its
+// anomaly about its own mean (anomalyRMS). A fit run off to a phantom
+// line far below (a sensor turned half round, its field's vertical
+// reversed: found in review) gives a near-uniform field of hundreds of
+// thousands of nT standing in for the background, against which a misfit
+// of 360 times the readings' noise was 0.3% and passed unwarned.
+func fitSignal(res *inverse.Result) float64 {
+	sig := signalRMS(res)
+	if a := anomalyRMS(res); a < phantomShare*sig {
+		return a
+	}
+	return sig
+}
+
+// phantomShare is the share of the sources' field about the background
+// below which its anomaly over the group is taken as the signal instead
+// (fitSignal): a line crossing a traverse gives an anomaly of most of its
+// field (over a traverse of four depths either side of a line, its field
+// about its mean is 82% of it in RMS, computed from the two-dimensional
+// Biot-Savart field of a long line, components d/(x²+d²) and x/(x²+d²));
+// a far line's field is near uniform.
+const phantomShare = 0.25
 
 // nanoMetre rounds a length in metres to the nearest nanometre, far below
 // any depth's uncertainty, for the document's derived reference heights.

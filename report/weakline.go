@@ -103,6 +103,9 @@ func noCurrentProblem(f *Fit, res *inverse.Result, s *inverse.SourceEstimate, ac
 		// group, not a line's, which lineEvidence would count.
 		return head + fmt.Sprintf(" once the field of the magnetised object reported at %s, which these readings hold too, is allowed for: no conductor is detected under this group, though one too deep or weak for these readings may lie there; its position and depth mean nothing", f.sameObject)
 	}
+	if w := unfitNoCurrent(f, res, ac); w != "" {
+		return head + w
+	}
 	drop, limit, ok := lineEvidence(f, res, ac)
 	along := alongClause(f)
 	switch {
@@ -119,6 +122,31 @@ func noCurrentProblem(f *Fit, res *inverse.Result, s *inverse.SourceEstimate, ac
 	}
 	return head + fmt.Sprintf(", and a line lowers chi-square by only %.3g from the background alone, which noise can (up to %.3g at %d readings): no conductor is detected under this group, though one too deep or weak for these readings may lie there; its position and depth mean nothing",
 		math.Max(drop, 0), limit, len(f.Problem.Points))
+}
+
+// unfitNoCurrent words, for a group whose lines carry no current the
+// data resolve but whose fit misses its readings by more than farMisfit
+// times the noise they show, why: no line describes the field, which is
+// strong, so the cause is not a conductor too deep or weak. A sensor
+// turned half round or its vertical reversed ran every fit off to a
+// phantom 122 kA line 90 m down, 736 nT RMS off readings with 2 nT of
+// noise and a 3571 nT anomaly, and each group was told "too deep or weak
+// ... longer traverses would" (found in review). Empty when the fit is
+// within that of the noise, or the noise was not measured.
+func unfitNoCurrent(f *Fit, res *inverse.Result, ac bool) string {
+	measured := f.MeasuredNoise
+	if !(measured > 0) || res == nil || res.RMS <= 0 {
+		return ""
+	}
+	r := res.RMS
+	if ac {
+		r /= math.Sqrt2
+	}
+	if r <= farMisfit*measured {
+		return ""
+	}
+	return fmt.Sprintf(", and the fit misses the readings by %.3g nT RMS per component, %.3g times the %.3g nT noise they show: no line describes this field, so its current, position and depth mean nothing. A deep or faint conductor's field would still fit to about the noise: check the sensor's orientation and the field columns first (a sensor turned on its mount or upside down, two field columns swapped, an axis's sign reversed, a field logged north, east, down read as east, north, up; a base log beside the survey, --base, names the mistake), then nearby steel or conductors close together",
+		r, r/measured, measured)
 }
 
 // noCurrentHead is the start of noCurrentProblem's text, giving the

@@ -59,6 +59,10 @@ type surveyField struct {
 	// fitted is set when the values are the fitted groups' backgrounds
 	// (one a group) rather than readings.
 	fitted bool
+	// rough is set when the values are a DC survey's readings, whose
+	// median holds the conductors' field (up to about 1000 nT over a
+	// strong line): no fit was sound to give its background.
+	rough bool
 }
 
 // add keeps the finite readings of s (every k-th of a long log).
@@ -129,7 +133,7 @@ func baseDistanceKm(base *ingest.Samples, origin *[2]float64) (float64, bool) {
 // unknown (compared is then false). basePath names the base log, cal is the calibration applied
 // (nil: none), mountYaw the --mount-yaw already applied (the flag's value
 // to suggest is the sum).
-func baseFieldWarnings(basePath string, base *ingest.Samples, f *surveyField, origin *[2]float64, cal *calibrate.Calibration, mountYaw float64) (warns []string, compared bool) {
+func baseFieldWarnings(basePath string, base *ingest.Samples, f *surveyField, origin *[2]float64, cal *calibrate.Calibration, mountYaw float64, ot *orientTest) (warns []string, compared bool) {
 	if base == nil || f == nil || len(f.e) < 10 && !(f.fitted && len(f.e) > 0) || base.Len() == 0 {
 		return nil, false
 	}
@@ -180,9 +184,13 @@ func baseFieldWarnings(basePath string, base *ingest.Samples, f *surveyField, or
 		return nil, false
 	}
 	compared = true
+	refitLevel := false
 	cos := (b[0]*s[0] + b[1]*s[1] + b[2]*s[2]) / (nb * ns)
 	angle := math.Acos(math.Max(-1, math.Min(1, cos))) * 180 / math.Pi
 	allow := fieldTurnAllowDeg + fieldTurnPerKmDeg*km
+	if f.rough {
+		allow = math.Max(allow, axesMatchDeg)
+	}
 	where := "beside the survey"
 	if km > 0.05 {
 		where = fmt.Sprintf("%.1f km from the survey", km)
@@ -191,47 +199,22 @@ func baseFieldWarnings(basePath string, base *ingest.Samples, f *surveyField, or
 	if f.fitted {
 		what = "the survey's field after the corrections (the median of the fitted groups' backgrounds, the conductors' field left out:"
 	}
+	if f.rough {
+		what = "the survey's field after the corrections (the readings' median, which holds the conductors' field, no group's fit being sound enough to give its background:"
+	}
 	if absolute && angle > allow {
-		// The horizontal direction (declination-like, clockwise from
-		// north) and the dip below the horizontal of each.
-		head := func(v [3]float64) float64 { return math.Atan2(v[0], v[1]) * 180 / math.Pi }
-		dip := func(v [3]float64) float64 { return math.Atan2(-v[2], math.Hypot(v[0], v[1])) * 180 / math.Pi }
-		dh := math.Remainder(head(s)-head(b), 360)
-		dd := dip(s) - dip(b)
-		side := "clockwise"
-		if dh < 0 {
-			side = "anticlockwise"
-		}
-		steeper := "steeper"
-		if dd < 0 {
-			steeper = "shallower"
-		}
-		psi, tilt := math.Abs(dh), math.Abs(dd)
-		msg := fmt.Sprintf("%s east %.0f, north %.0f, up %.0f nT) points %.1f° away from the base record's (%.0f, %.0f, %.0f nT; %s, %s), more than the %.1f° that local anomalies and the distance between them allow: its horizontal direction is turned %.1f° %s (seen from above) and it dips %.1f° %s. The sensor's axes are turned against east, north, up (or the base magnetometer's own are), which a spin calibration cannot see and the fits' sigmas do not include (one field direction cannot part a turn about the vertical from a tilt fully: a tilt across the field also turns its horizontal direction).",
-			what, s[0], s[1], s[2], angle, b[0], b[1], b[2], basePath, where, allow, psi, side, tilt, steeper)
-		if cal == nil {
-			// Uncorrected offsets and soft iron turn the field as well
-			// (Kestrel Moor's sensor, 310/-240/180 nT of offset and an
-			// off-diagonal soft-iron matrix, read 1.8° with no mount
-			// turned, and the --mount-yaw offered made the azimuths worse;
-			// with its spin calibration no warning: found in review).
-			msg += " No --calibration was given: a sensor's uncorrected offsets and soft iron turn the field too, so calibrate it first (calibrate --spin) unless the log is already corrected; a turn left after calibration is the mount's or the attitude's."
-		}
-		if psi >= 0.5 {
-			yaw := fmt.Sprintf("if the magnetometer is turned on its mount, --mount-yaw %.1f turns the readings back.", mountYaw-dh)
-			if cal == nil {
-				yaw = fmt.Sprintf("if the log is already corrected and the magnetometer is turned on its mount, --mount-yaw %.1f turns the readings back.", mountYaw-dh)
+		if msg, ok, level := axesWarning(what, s, b, angle, allow, basePath, where, mountYaw, ot); ok {
+			warns = append(warns, msg)
+			if level != nil {
+				ns, refitLevel = norm(*level), true
 			}
-			msg += fmt.Sprintf(" A turn about the vertical of %.1f° (a magnetometer turned on its pole or mount, a heading reference off) turns every fitted line with it: azimuths off by about %.1f°, plan offsets with them, currents and depths low by 1 - cos %.1f° (%.2f%%); %s", psi, psi, psi, 100*(1-math.Cos(psi*math.Pi/180)), yaw)
+		} else {
+			warns = append(warns, turnWarning(what, s, b, angle, allow, basePath, where, cal, mountYaw, ot))
 		}
-		if tilt >= 0.5 {
-			msg += fmt.Sprintf(" A tilt of %.1f° (a leaning pole, an attitude reference off) turns the field into components no line gives: plan offsets off, currents scattered, perhaps a phantom return line.", tilt)
-		}
-		warns = append(warns, msg+" Check how the sensor is mounted and its attitude reference")
 	}
 	d := (ns - nb) / nb
 	allowMag := fieldScaleAllow + fieldMagPerKm*km/nb
-	if math.Abs(d) > allowMag {
+	if math.Abs(d) > allowMag && (!f.rough || refitLevel) {
 		var cause string
 		switch {
 		case cal == nil:
@@ -244,7 +227,10 @@ func baseFieldWarnings(basePath string, base *ingest.Samples, f *surveyField, or
 			cause = "the calibration's scale or offsets do not suit this survey, or the base's own level is off"
 		}
 		src := ""
-		if f.fitted {
+		switch {
+		case refitLevel:
+			src = " of the groups' backgrounds fitted again with the readings read as above"
+		case f.fitted:
 			src = " of the fitted groups' backgrounds"
 		}
 		warns = append(warns, fmt.Sprintf("|B| of the survey after the corrections is %.0f nT (median)%s, %+.2f%% from the %.0f nT of the %s (%s, %s), more than the %.2f%% that local anomalies and the distance between them allow: %s. Currents scale with the sensor's scale (a scale %.2f%% off gives currents %.2f%% off), which the fits' sigmas do not include",
@@ -273,33 +259,31 @@ type baseCheck struct {
 	origin  *[2]float64
 	cal     *calibrate.Calibration
 	calPath string
+	// enu is set when every log is in east, north, up (not a
+	// sensor-frame log), where --field-axes applies.
+	enu bool
 }
 
 // warnings compares the survey's field with the base record's
 // (baseFieldWarnings) once the groups are fitted, and says what the
 // calibration leaves open when nothing could check it. A DC survey's
-// field is each fitted group's background: the readings' median holds the
-// conductors' field, which does not average out (a line's horizontal
-// field has the same sign on both sides of it) and moved it by hundreds
-// of nT over a 25 A line. An AC survey's readings swing about the Earth's
-// field and their median is kept.
+// field is the sound fits' backgrounds (surveyLevel): the readings' median
+// holds the conductors' field, which does not average out (a line's
+// horizontal field has the same sign on both sides of it) and moved it by
+// hundreds of nT over a 25 A line, and a failed fit's background holds a
+// phantom line's. An AC survey's readings swing about the Earth's field
+// and their median is kept. Without a base record, the vertical
+// component's sign is checked against the site's hemisphere
+// (upWarning).
 func (c *baseCheck) warnings(o *locateOptions, sv *survey) (alerts, warns []string) {
 	compared := false
-	if c.base != nil {
-		f := c.raw
-		if !sv.ac {
-			f = &surveyField{fitted: true}
-			for _, g := range sv.groups {
-				if g.err != nil || g.res == nil {
-					continue
-				}
-				bg := g.res.Background
-				if finite(bg[0]) && finite(bg[1]) && finite(bg[2]) {
-					f.e, f.n, f.u = append(f.e, bg[0]), append(f.n, bg[1]), append(f.u, bg[2])
-				}
-			}
+	if c.raw != nil {
+		f := c.surveyLevel(sv)
+		if c.base != nil {
+			alerts, compared = baseFieldWarnings(o.base, c.base, f, c.origin, c.cal, o.mountYaw, newOrientTest(o, sv, c.enu))
+		} else if w := upWarning(f, c.origin); w != "" {
+			alerts = append(alerts, w)
 		}
-		alerts, compared = baseFieldWarnings(o.base, c.base, f, c.origin, c.cal, o.mountYaw)
 	}
 	if c.cal != nil && !compared {
 		if w := uncheckedCalibrationWarning(c.calPath, c.cal); w != "" {

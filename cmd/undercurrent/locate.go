@@ -84,6 +84,10 @@ type locateOptions struct {
 	// turned this far anticlockwise seen from above (a magnetometer
 	// turned on its mount); the readings are turned back (mountturn.go).
 	mountYaw float64
+	// fieldAxes is --field-axes: what the field columns hold (fieldaxes.go);
+	// axes is it read (identity when not given).
+	fieldAxes string
+	axes      axisMap
 }
 
 // resultFiles are the files locate writes into its output directory.
@@ -92,6 +96,7 @@ var resultFiles = []string{report.FileJSON, report.FileCSV, report.FileFindings,
 func (o *locateOptions) setFlags(fs *pflag.FlagSet) {
 	fs.StringVar(&o.calibration, "calibration", "", "apply the sensor calibration in `CAL.json` (from undercurrent calibrate)")
 	fs.Float64Var(&o.mountYaw, "mount-yaw", 0, "the magnetometer is turned on its mount: its field as read is turned `DEG` degrees anticlockwise seen from above (the turn the check against the base record reports, with its sign); the readings are turned back by it about the sensor's vertical axis, after the calibration and before the attitude")
+	fs.StringVar(&o.fieldAxes, "field-axes", "", "what the field columns bx, by, bz hold, `A,B,C` each one of e, n, u (east, north, up) or w, s, d (west, south, down): n,e,d for a field logged north, east, down with positions east, north, up; e,s,d for a sensor mounted upside down; n,e,u for bx and by swapped; the field alone is read so (--frame turns the positions too), after the calibration and before --mount-yaw; for an enu log only")
 	fs.StringArrayVar(&o.bases, "base", nil, "subtract the diurnal variation recorded by the base station log `BASE` (any log format, IAGA-2002 too); give it again for a record in several files (daily observatory files across midnight UTC), joined in time order whatever their order here (readings at one time must agree, files that overlap must share readings there, and the level must not step where one file ends and the next begins)")
 	fs.Float64Var(&o.baseHold, "base-hold", 0, "correct survey readings up to `S` seconds before or after the base log with its nearest value held, and interpolate the base across its gaps up to S seconds long, S above or below the default (default for both: five base sample intervals, at least 60 s and at most 300 s; 0: no hold at all, and no reading missing from the base; readings further out, or in a longer gap, are refused, since a held value or a straight line across the gap is no correction)")
 	fs.StringSliceVar(&o.baseColumns, "base-column", nil, "name the base log's columns, `CANON=NAME` as --column does for the survey logs (time=Time,bx=magX,by=magY,bz=magZ); not for an IAGA-2002 base")
@@ -209,6 +214,17 @@ func (o *locateOptions) check(fs *pflag.FlagSet) error {
 	}
 	if math.IsNaN(o.mountYaw) || math.IsInf(o.mountYaw, 0) {
 		return usageErrorf("--mount-yaw %g: want a finite angle in degrees", o.mountYaw)
+	}
+	o.axes = identityAxes
+	if o.fieldAxes != "" {
+		m, err := parseFieldAxes(o.fieldAxes)
+		if err != nil {
+			return usageErrorf("--field-axes %s: %v", o.fieldAxes, err)
+		}
+		if o.read.frame != "" && o.read.frame != "enu" {
+			return usageErrorf("--field-axes describes the field columns of an east, north, up log: give it without --frame %s (for a field logged north, east, down beside positions in east, north, up, --field-axes n,e,d alone)", o.read.frame)
+		}
+		o.axes = m
 	}
 	o.hasRefZ = fs != nil && fs.Changed("reference-z")
 	if o.hasRefZ && fs.Changed("sensor-height") {
@@ -726,6 +742,7 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 	var turns offsetTurn
 	var swings swing
 	var field surveyField
+	enu := true
 	for k, path := range logs {
 		s := read[k]
 		read[k] = nil // the groups hold the readings from here on
@@ -759,6 +776,12 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 				return nil, fmt.Errorf("%s: %w", path, err)
 			}
 		}
+		if !o.axes.identity() && !o.coil.on() {
+			if s.InFrame != ingest.FrameENU || s.Frame != ingest.FrameENU {
+				return nil, usageErrorf("%s: --field-axes describes the field columns of an east, north, up log, and this log is read in another frame (its own frame line or metadata)", path)
+			}
+			applyFieldAxes(s, o.axes)
+		}
 		if o.mountYaw != 0 && !o.coil.on() {
 			turnMount(s, o.mountYaw)
 		}
@@ -781,8 +804,11 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		if checkTurns {
 			swings.add(path, s)
 		}
-		if base != nil && !o.coil.on() {
+		if !o.coil.on() {
 			field.add(s)
+		}
+		if s.Frame != ingest.FrameENU {
+			enu = false
 		}
 		if o.groupBy == "" {
 			if w := groupColumnWarning(path, groupColumnName(o), s); w != "" {
@@ -883,8 +909,8 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 	// The survey's field against the base record's is compared once the
 	// groups are fitted (baseCheck.warnings): a DC survey's level is the
 	// fits' own backgrounds, which hold no conductor's field.
-	sv.baseCheck = &baseCheck{cal: cal, calPath: o.calibration}
-	if base != nil && !o.coil.on() {
+	sv.baseCheck = &baseCheck{cal: cal, calPath: o.calibration, enu: enu}
+	if !o.coil.on() {
 		sv.baseCheck.base, sv.baseCheck.raw = base, &field
 		if org := doc.Frame.Origin; org != nil {
 			sv.baseCheck.origin = &[2]float64{org.Lat, org.Lon}

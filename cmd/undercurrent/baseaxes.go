@@ -1,0 +1,568 @@
+package main
+
+import (
+	"fmt"
+	"math"
+	"sort"
+	"strings"
+
+	"undercurrent/calibrate"
+	"undercurrent/inverse"
+)
+
+// The survey's field against the base record's when the sensor's axes
+// are wrong by a quarter or half turn, a reflection or an upside-down
+// mount (found in review): the base check had described every
+// disagreement as a turn about the vertical plus a tilt, from the fits'
+// backgrounds even where the fits had failed. A sensor turned half round
+// makes every line fit run off to a phantom line 90 m down whose
+// near-uniform field the background gives back, so the level compared was
+// 25° and 13% off the true one: a "46.5° turn" and a "13.6% scale error"
+// blamed on the calibration, where --mount-yaw 180 gave the truth. An
+// upside-down sensor, a north, east, down field read as east, north, up
+// and two swapped columns drew a --mount-yaw that cannot undo them (the
+// last led to seven "sound" fits at 43% of the current).
+//
+// The level is now taken from the sound fits' backgrounds only (the
+// readings' median when none is sound), the 48 ways of reading three
+// columns (each axis from any column, either sign) are tried against the
+// base's field, and those that bring it within the allowance are tried
+// on the fits: the groups are fitted again with the readings so read, and
+// the one that brings them to their noise is named, with the flag that
+// reads the log so.
+
+const (
+	// soundMisfit is the multiple of a group's measured noise its fit's
+	// RMS may reach for its background to give the survey's level: a
+	// fit of the wrong model misses by a few times the noise (a pair
+	// fitted as one line, a swaying sensor: 2-10), one run off to a
+	// phantom line because the field's axes are wrong by hundreds.
+	soundMisfit = 20.0
+	// axesMatchDeg is the least allowance for a way of reading the
+	// columns to match the base's field: the readings' median holds up to
+	// about 1000 nT of a strong line's field (1.2° of 50 000 nT) when no
+	// fit is sound; the ways of reading differ by 90° or more, or by
+	// twice a small component's angle.
+	axesMatchDeg = 3.0
+	// axesMinDeg is the least angle between the survey's field and the
+	// base's for a way of reading the columns to be looked for: a
+	// mirror or turn of axes that carry a small share of the field (the
+	// east component at a site of small declination) moves it by twice
+	// that share's angle only, which a small turn of the sensor does too
+	// (a 3° turn matched reading east as west to 1.5° at Harrow Fen).
+	axesMinDeg = 10.0
+	// refitGood is the multiple of their noise the refitted groups'
+	// median RMS must reach for a way of reading to be confirmed.
+	refitGood = 3.0
+	// maxRefitGroups is how many groups are fitted again for each way of
+	// reading tried (spread over the survey).
+	maxRefitGroups = 12
+	// trackAgreeDeg is the largest angle between the refitted lines'
+	// median azimuth and the track through their crossings for a way of
+	// reading to be taken as the right one: a straight conductor's
+	// crossings lie along its azimuth (the wrong reading of the Harrow
+	// Fen line, a mirror fitted as a turn, put lines at 120° along a
+	// 60° track).
+	trackAgreeDeg = 15.0
+)
+
+// orientTest lets baseFieldWarnings fit the groups again with their
+// fields turned.
+type orientTest struct {
+	// refit returns the median over the groups of the fit's RMS over
+	// the group's measured noise with each reading's field turned by
+	// turn; nil when the groups cannot be fitted again (AC, a
+	// sensor-frame log).
+	refit func(turn func([3]float64) [3]float64) refitResult
+	// asRead is that median of the fits as they are (NaN: unknown).
+	asRead float64
+	// enu is set when every log is in east, north, up, where
+	// --field-axes applies.
+	enu bool
+	// axes is the --field-axes already applied.
+	axes axisMap
+}
+
+func angleDeg(a, b [3]float64) float64 {
+	c := (a[0]*b[0] + a[1]*b[1] + a[2]*b[2]) / (norm(a) * norm(b))
+	return math.Acos(math.Max(-1, math.Min(1, c))) * 180 / math.Pi
+}
+
+func headingDeg(v [3]float64) float64 { return math.Atan2(v[0], v[1]) * 180 / math.Pi }
+
+// axesCandidate is a way of reading the columns that brings the survey's
+// field onto the base's.
+type axesCandidate struct {
+	m      axisMap
+	angle  float64 // from the base's field once read so, degrees
+	misfit float64 // median refitted RMS over noise; NaN: not refitted
+	// trackOff is the angle, degrees, between the refitted lines' median
+	// azimuth and the track through their crossings (NaN: too few
+	// groups). A mirror image and a turn can both fit each traverse
+	// to the noise where the field's east is near zero; only the right
+	// one puts lines along the track they cross the traverses on.
+	trackOff float64
+	// background is the refitted groups' median background.
+	background [3]float64
+}
+
+// refitResult is what fitting the groups again with their fields turned
+// gives: the median over the groups of the fit's RMS over its noise, the
+// lines' angle off their track (axesCandidate.trackOff) and the median of
+// the sound fits' backgrounds (NaN when none).
+type refitResult struct {
+	misfit, trackOff float64
+	background       [3]float64
+}
+
+// trackOK is set when the refitted lines follow the track through them.
+func (c axesCandidate) trackOK() bool { return c.trackOff <= trackAgreeDeg }
+
+// describe names what reading the columns with m undoes, and whether a
+// turn about the vertical does it (then yaw is the --mount-yaw, degrees
+// anticlockwise, that the survey field s needs on top of mountYaw).
+func (c axesCandidate) describe(s [3]float64, mountYaw float64) (what string, turn bool, yaw float64) {
+	m := c.m
+	det := m.det()
+	switch {
+	case m.perm[2] == 2 && m.sign[2] > 0 && det > 0:
+		dh := math.Remainder(headingDeg(s)-headingDeg(m.apply(s)), 360)
+		dh = 90 * math.Round(dh/90)
+		yaw = math.Remainder(mountYaw-dh, 360)
+		switch math.Abs(math.Remainder(dh, 360)) {
+		case 180:
+			what = "the sensor turned half round (180°) on its mount or pole"
+		default:
+			side := "anticlockwise"
+			if yaw < 0 {
+				side = "clockwise"
+			}
+			what = fmt.Sprintf("the sensor turned a quarter turn (90° %s, seen from above) on its mount or pole", side)
+		}
+		return what, true, yaw
+	case m.perm[2] == 2 && m.sign[2] > 0:
+		what = "a mirror image of it, which no turn undoes: two horizontal field columns swapped, or one horizontal axis's sign reversed"
+		if m.perm[0] == 1 && m.perm[1] == 0 {
+			what = "a mirror image of it, which no turn undoes: the bx and by columns swapped (or, with them, a horizontal axis's sign reversed)"
+		}
+	case m.perm[2] == 2 && det > 0 && m.flag() == "n,e,d":
+		what = "the field logged north, east, down (the geophysical X, Y, Z) and read as east, north, up: its vertical component has the wrong sign"
+	case m.perm[2] == 2 && det > 0:
+		what = "the sensor mounted upside down (turned over about a horizontal axis): its vertical component has the wrong sign"
+	case m.perm[2] == 2:
+		what = "a mirror image of it, which no turn undoes: the z axis reversed (its column's sign, or a z-down axis beside x and y of an east, north, up frame)"
+	default:
+		what = fmt.Sprintf("the vertical read from the %s column: the sensor lying on its side, or its field columns out of order", [3]string{"bx", "by", "bz"}[m.perm[2]])
+	}
+	return what, false, 0
+}
+
+// compose returns the --field-axes that reads the log as m does after a.
+func compose(m, a axisMap) axisMap {
+	var out axisMap
+	for i := range 3 {
+		out.perm[i] = a.perm[m.perm[i]]
+		out.sign[i] = m.sign[i] * a.sign[m.perm[i]]
+	}
+	return out
+}
+
+// axesWarning returns the warning for a survey field s that some way of
+// reading the columns (not the identity) brings onto the base's field b,
+// and false when none does (a turn or tilt of another size).
+//
+// When a way of reading is confirmed by the refit, level is the refitted
+// groups' median background (for the |B| check: a failed fit's
+// background, or the readings' median, holds a line's field).
+func axesWarning(what string, s, b [3]float64, angle, allow float64, basePath, where string, mountYaw float64, ot *orientTest) (msg string, ok bool, level *[3]float64) {
+	tol := math.Max(allow, axesMatchDeg)
+	if angle < axesMinDeg {
+		return "", false, nil
+	}
+	var cands []axesCandidate
+	for _, m := range allAxisMaps() {
+		if m.identity() {
+			continue
+		}
+		if a := angleDeg(m.apply(s), b); a <= tol {
+			cands = append(cands, axesCandidate{m: m, angle: a, misfit: math.NaN()})
+		}
+	}
+	if len(cands) == 0 {
+		return "", false, nil
+	}
+	refitted := ot != nil && ot.refit != nil
+	if refitted {
+		for i := range cands {
+			m := cands[i].m
+			r := ot.refit(m.apply)
+			cands[i].misfit, cands[i].trackOff, cands[i].background = r.misfit, r.trackOff, r.background
+		}
+		// The ways that fit to the noise first, of them those whose
+		// lines follow their track, then turns before mirror images.
+		rank := func(c axesCandidate) [3]int {
+			var r [3]int
+			if !(c.misfit <= refitGood) {
+				r[0] = 1
+			}
+			if !c.trackOK() {
+				r[1] = 1
+			}
+			if c.m.det() < 0 {
+				r[2] = 1
+			}
+			return r
+		}
+		sort.SliceStable(cands, func(i, j int) bool {
+			ri, rj := rank(cands[i]), rank(cands[j])
+			if ri != rj {
+				for k := range ri {
+					if ri[k] != rj[k] {
+						return ri[k] < rj[k]
+					}
+				}
+			}
+			a, b := cands[i].misfit, cands[j].misfit
+			if math.IsNaN(a) != math.IsNaN(b) {
+				return !math.IsNaN(a)
+			}
+			if a != b {
+				return a < b
+			}
+			return cands[i].angle < cands[j].angle
+		})
+	} else {
+		sort.SliceStable(cands, func(i, j int) bool { return cands[i].angle < cands[j].angle })
+	}
+	best := cands[0]
+	msg = fmt.Sprintf("%s east %.0f, north %.0f, up %.0f nT) points %.1f° away from the base record's (%.0f, %.0f, %.0f nT; %s, %s), more than the %.1f° that local anomalies and the distance between them allow, and is the base's field, to %.1f°, with the sensor's axes read wrong",
+		what, s[0], s[1], s[2], angle, b[0], b[1], b[2], basePath, where, allow, best.angle)
+	desc, turn, yaw := best.describe(s, mountYaw)
+	remedy := ""
+	if turn {
+		remedy = fmt.Sprintf("--mount-yaw %.0f turns the readings back", yaw)
+	} else if ot != nil && ot.enu && math.Remainder(mountYaw, 360) == 0 {
+		remedy = fmt.Sprintf("--field-axes %s reads the field columns so (the field alone: --frame would turn the positions too)", compose(best.m, ot.axes).flag())
+	} else if ot != nil && ot.enu {
+		remedy = fmt.Sprintf("run again without --mount-yaw and follow this check's advice then (--field-axes reads the field columns in another order or sign; --mount-yaw turns them after it)")
+	} else {
+		remedy = "read the field columns in the right order and sign (for a sensor-frame log, its x forward, y right, z down)"
+	}
+	good := refitted && best.misfit <= refitGood
+	switch {
+	case good:
+		if bg := best.background; finite(bg[0] + bg[1] + bg[2]) {
+			level = &bg
+		}
+		// Other ways of reading that fit as well cannot be told apart
+		// by these readings (a line along east sees no east field).
+		var also, off []string
+		for _, c := range cands[1:] {
+			if c.misfit <= math.Max(refitGood, 1.5*best.misfit) {
+				d, _, _ := c.describe(s, mountYaw)
+				if best.trackOK() && !c.trackOK() {
+					off = append(off, fmt.Sprintf("%s (its lines %.0f° off the track through them)", d, c.trackOff))
+				} else {
+					also = append(also, d)
+				}
+			}
+		}
+		track := ""
+		if best.trackOK() {
+			track = fmt.Sprintf(", and the lines found follow the track through their crossings (to %.1f°)", best.trackOff)
+		}
+		msg += fmt.Sprintf(": %s. Fitted again with the readings read so, the groups' fits miss their readings by %.3g times their noise (median), against %.3g times as read%s; %s",
+			desc, best.misfit, ot.asRead, track, remedy)
+		if len(off) > 0 {
+			msg += fmt.Sprintf(". Read as %s, each group fits as well but the lines found cross the track, so that reading is not offered", strings.Join(off, "; or as "))
+		}
+		if len(also) > 0 {
+			msg += fmt.Sprintf(". These readings fit as well read as %s, which they cannot tell apart: check the mount and the columns before following either", strings.Join(also, "; or as "))
+		}
+	case refitted:
+		var tried []string
+		for _, c := range cands {
+			d, _, _ := c.describe(s, mountYaw)
+			tried = append(tried, fmt.Sprintf("%s (%.3g times)", d, c.misfit))
+		}
+		msg += fmt.Sprintf(", but fitted again with the readings read in each such way the groups' fits still miss their readings by many times their noise (median, as read %.3g times): %s. No turn is offered; check how the sensor is mounted, the field columns' order and signs and the frame (east, north, up or north, east, down)",
+			ot.asRead, strings.Join(tried, "; "))
+	default:
+		msg += fmt.Sprintf(": most likely %s (not checked against the fits); %s", desc, remedy)
+		if len(cands) > 1 {
+			var other []string
+			for _, c := range cands[1:] {
+				d, _, _ := c.describe(s, mountYaw)
+				other = append(other, d)
+			}
+			msg += fmt.Sprintf(". The field alone matches as well %s", strings.Join(other, "; or "))
+		}
+	}
+	return msg + ". Currents, depths and positions from the fits as read mean nothing until the readings are read right", true, level
+}
+
+// turnWarning returns the warning for a survey field s turned from the
+// base's b by no way of reading the columns: a turn about the vertical
+// and a tilt, or a vertical component of the wrong sign.
+func turnWarning(what string, s, b [3]float64, angle, allow float64, basePath, where string, cal *calibrate.Calibration, mountYaw float64, ot *orientTest) string {
+	// The horizontal direction (declination-like, clockwise from
+	// north) and the dip below the horizontal of each.
+	dip := func(v [3]float64) float64 { return math.Atan2(-v[2], math.Hypot(v[0], v[1])) * 180 / math.Pi }
+	dh := math.Remainder(headingDeg(s)-headingDeg(b), 360)
+	dd := dip(s) - dip(b)
+	side := "clockwise"
+	if dh < 0 {
+		side = "anticlockwise"
+	}
+	steeper := "steeper"
+	if dd < 0 {
+		steeper = "shallower"
+	}
+	psi, tilt := math.Abs(dh), math.Abs(dd)
+	msg := fmt.Sprintf("%s east %.0f, north %.0f, up %.0f nT) points %.1f° away from the base record's (%.0f, %.0f, %.0f nT; %s, %s), more than the %.1f° that local anomalies and the distance between them allow: its horizontal direction is turned %.1f° %s (seen from above) and it dips %.1f° %s. The sensor's axes are turned against east, north, up (or the base magnetometer's own are), which a spin calibration cannot see and the fits' sigmas do not include (one field direction cannot part a turn about the vertical from a tilt fully: a tilt across the field also turns its horizontal direction).",
+		what, s[0], s[1], s[2], angle, b[0], b[1], b[2], basePath, where, allow, psi, side, tilt, steeper)
+	if cal == nil {
+		// Uncorrected offsets and soft iron turn the field as well
+		// (Kestrel Moor's sensor, 310/-240/180 nT of offset and an
+		// off-diagonal soft-iron matrix, read 1.8° with no mount
+		// turned, and the --mount-yaw offered made the azimuths worse;
+		// with its spin calibration no warning: found in review).
+		msg += " No --calibration was given: a sensor's uncorrected offsets and soft iron turn the field too, so calibrate it first (calibrate --spin) unless the log is already corrected; a turn left after calibration is the mount's or the attitude's."
+	}
+	// A vertical component of the other sign than the base's: no turn
+	// about the vertical undoes it.
+	if s[2]*b[2] < 0 && math.Abs(b[2]) > 0.2*norm(b) {
+		fix := "--field-axes says what each field column holds (e,s,d for a sensor upside down, n,e,d for a field logged north, east, down)"
+		if ot != nil && !ot.enu {
+			fix = "for a sensor-frame log, read its columns as x forward, y right, z down"
+		}
+		return msg + fmt.Sprintf(" Its vertical component (%.0f nT) has the other sign than the base's (%.0f nT): the sensor's z axis is reversed (mounted upside down, or a field logged with z down read as up), which no turn about the vertical undoes, so no --mount-yaw is offered; %s. Check how the sensor is mounted, the field columns' order and signs and its attitude reference", s[2], b[2], fix)
+	}
+	if psi >= 0.5 {
+		yawFlag := mountYaw - dh
+		tried := ""
+		offer := true
+		if ot != nil && ot.refit != nil {
+			// The readings as read are already turned back by
+			// mountYaw; turn them by the rest.
+			r := -(yawFlag - mountYaw) * math.Pi / 180
+			sr, cr := math.Sincos(r)
+			got := ot.refit(func(v [3]float64) [3]float64 { return [3]float64{cr*v[0] - sr*v[1], sr*v[0] + cr*v[1], v[2]} })
+			if !(got.misfit <= math.Max(refitGood, 1.2*ot.asRead)) {
+				offer = false
+				tried = fmt.Sprintf(" Fitted again with the readings turned back by it, the groups' fits still miss their readings by %.3g times their noise (median): a turned sensor's readings fit once turned back, so the cause is likely elsewhere (two field columns swapped, an axis reversed, a frame mistaken) and no --mount-yaw is offered.", got.misfit)
+			}
+		}
+		low := ""
+		if psi < 90 {
+			low = fmt.Sprintf(", currents and depths low by 1 - cos %.1f° (%.2f%%)", psi, 100*(1-math.Cos(psi*math.Pi/180)))
+		}
+		msg += fmt.Sprintf(" A turn about the vertical of %.1f° (a magnetometer turned on its pole or mount, a heading reference off) turns every fitted line with it: azimuths off by about %.1f°, plan offsets with them%s", psi, psi, low)
+		if offer {
+			yaw := fmt.Sprintf("if the magnetometer is turned on its mount, --mount-yaw %.1f turns the readings back.", yawFlag)
+			if cal == nil {
+				yaw = fmt.Sprintf("if the log is already corrected and the magnetometer is turned on its mount, --mount-yaw %.1f turns the readings back.", yawFlag)
+			}
+			msg += "; " + yaw
+		} else {
+			msg += "." + tried
+		}
+	}
+	if tilt >= 0.5 {
+		msg += fmt.Sprintf(" A tilt of %.1f° (a leaning pole, an attitude reference off) turns the field into components no line gives: plan offsets off, currents scattered, perhaps a phantom return line.", tilt)
+	}
+	return msg + " Check how the sensor is mounted and its attitude reference"
+}
+
+// groupMisfit is a DC group's fit's RMS over its measured noise (NaN when
+// either is missing).
+func groupMisfit(g *group, res *inverse.Result) float64 {
+	if res == nil || len(g.fields) == 0 {
+		return math.NaN()
+	}
+	n := g.measuredNoise(false)
+	if !(n > 0) {
+		return math.NaN()
+	}
+	return res.RMS / n
+}
+
+// refitGroups returns the groups fitted again for orientTest.refit: at
+// most maxRefitGroups DC groups with readings, spread over the survey.
+func refitGroups(sv *survey) []*group {
+	var gs []*group
+	for _, g := range sv.groups {
+		if len(g.fields) >= 10 && g.measuredNoise(false) > 0 {
+			gs = append(gs, g)
+		}
+	}
+	if len(gs) <= maxRefitGroups {
+		return gs
+	}
+	out := make([]*group, 0, maxRefitGroups)
+	for i := range maxRefitGroups {
+		out = append(out, gs[i*len(gs)/maxRefitGroups])
+	}
+	return out
+}
+
+// newOrientTest builds the refit for a DC survey in east, north, up.
+func newOrientTest(o *locateOptions, sv *survey, enu bool) *orientTest {
+	ot := &orientTest{asRead: math.NaN(), enu: enu, axes: o.axes}
+	if sv.ac {
+		return ot
+	}
+	gs := refitGroups(sv)
+	var now []float64
+	for _, g := range gs {
+		if g.err == nil {
+			if r := groupMisfit(g, g.res); finite(r) {
+				now = append(now, r)
+			}
+		}
+	}
+	if len(now) > 0 {
+		ot.asRead = finiteMedian(now)
+	}
+	if !enu || len(gs) == 0 {
+		return ot
+	}
+	set := o.fitSettings()
+	ot.refit = func(turn func([3]float64) [3]float64) refitResult {
+		var r, az, be, bn, bu []float64
+		var pts [][2]float64
+		for _, g := range gs {
+			h := *g
+			h.fields = make([][3]float64, len(g.fields))
+			for i, v := range g.fields {
+				h.fields[i] = turn(v)
+			}
+			res, err := inverse.FitLines(h.problem(false, sv.groupNoise(g, o.noise)), set)
+			if err != nil {
+				continue
+			}
+			if v := groupMisfit(&h, res); finite(v) {
+				r = append(r, v)
+				if v <= soundMisfit {
+					be, bn, bu = append(be, res.Background[0]), append(bn, res.Background[1]), append(bu, res.Background[2])
+				}
+			}
+			if len(res.Sources) > 0 && res.Sources[0].Kind == "line" {
+				p := res.Sources[0].Point
+				pts = append(pts, [2]float64{p[0], p[1]})
+				az = append(az, res.Sources[0].Azimuth)
+			}
+		}
+		nan := math.NaN()
+		if len(r) == 0 {
+			return refitResult{misfit: nan, trackOff: nan, background: [3]float64{nan, nan, nan}}
+		}
+		return refitResult{misfit: finiteMedian(r), trackOff: trackOffDeg(pts, az), background: [3]float64{finiteMedian(be), finiteMedian(bn), finiteMedian(bu)}}
+	}
+	return ot
+}
+
+// surveyLevel returns the survey's field to compare with the base's or
+// the Earth's: for DC, the backgrounds of the groups whose fits are sound
+// (miss by at most soundMisfit times their noise), else the corrected
+// readings' median; for AC the readings'.
+func (c *baseCheck) surveyLevel(sv *survey) *surveyField {
+	if sv.ac {
+		return c.raw
+	}
+	f := &surveyField{fitted: true}
+	for _, g := range sv.groups {
+		if g.err != nil || g.res == nil {
+			continue
+		}
+		if r := groupMisfit(g, g.res); !(r <= soundMisfit) {
+			continue
+		}
+		bg := g.res.Background
+		if finite(bg[0]) && finite(bg[1]) && finite(bg[2]) {
+			f.e, f.n, f.u = append(f.e, bg[0]), append(f.n, bg[1]), append(f.u, bg[2])
+		}
+	}
+	if len(f.e) == 0 && c.raw != nil {
+		r := *c.raw
+		r.rough = true
+		return &r
+	}
+	return f
+}
+
+// upWarning checks, without a base record, the sign of the survey's
+// vertical field f against the site's hemisphere (origin: latitude,
+// longitude; nil when unknown). The Earth's field dips down in the
+// northern hemisphere and up in the southern, steeply (over 30°) away
+// from the magnetic equator's belt (about 20° either side of the
+// geographic equator, from memory of the IGRF inclination charts). An
+// upside-down sensor, or a field logged north, east, down read as east,
+// north, up, reverses the vertical: its lines fit as well as the true
+// ones, at the wrong current and depth (a 25 A line at 1.1 m was "sound"
+// at -12.5 A and 0.40 m, found in review), so the sign is the one sign
+// of it.
+func upWarning(f *surveyField, origin *[2]float64) string {
+	if f == nil || len(f.e) == 0 {
+		return ""
+	}
+	s := [3]float64{finiteMedian(f.e), finiteMedian(f.n), finiteMedian(f.u)}
+	ns := norm(s)
+	if !finite(ns) || ns < calibrate.MinEarthField || ns > calibrate.MaxEarthField {
+		return ""
+	}
+	dip := math.Asin(-s[2]/ns) * 180 / math.Pi // positive down
+	const steep, belt = 30.0, 20.0
+	if math.Abs(dip) < steep {
+		return ""
+	}
+	fix := "check how the sensor is mounted and what each field column holds: --field-axes reads them (e,s,d for a sensor mounted upside down, n,e,d for a field logged north, east, down, e,n,d for a z column of the wrong sign), and a base log beside the survey (--base) checks the whole field's direction"
+	switch {
+	case origin != nil && origin[0] > belt && dip < 0, origin != nil && origin[0] < -belt && dip > 0:
+		hemi, want := "northern", "down"
+		if origin[0] < 0 {
+			hemi, want = "southern", "up"
+		}
+		return fmt.Sprintf("the survey's field (east %.0f, north %.0f, up %.0f nT) points %.0f° %s, but at latitude %.2f° (the %s hemisphere) the Earth's field points %s: the sensor's z axis is likely reversed (mounted upside down, or a field logged with z down read as up), and lines then fit the readings as well as the true ones at the wrong current and depth; %s",
+			s[0], s[1], s[2], math.Abs(dip), map[bool]string{true: "down", false: "up"}[dip > 0], origin[0], hemi, want, fix)
+	case origin == nil && dip < 0:
+		return fmt.Sprintf("the survey's field (east %.0f, north %.0f, up %.0f nT) points %.0f° up, as the Earth's does only in the southern hemisphere: north of about 20° S the sensor's z axis is reversed (mounted upside down, or a field logged with z down read as up), and lines then fit the readings as well as the true ones at the wrong current and depth; %s",
+			s[0], s[1], s[2], -dip, fix)
+	}
+	return ""
+}
+
+// trackOffDeg returns the angle, degrees in [0, 90], between the lines'
+// median azimuth (az, clockwise from north, [0, 180)) and the principal
+// direction of their crossing points pts (east, north, m); NaN for fewer
+// than three lines or crossings spread over less than a metre.
+func trackOffDeg(pts [][2]float64, az []float64) float64 {
+	if len(pts) < 3 {
+		return math.NaN()
+	}
+	var me, mn float64
+	for _, p := range pts {
+		me, mn = me+p[0], mn+p[1]
+	}
+	me, mn = me/float64(len(pts)), mn/float64(len(pts))
+	var see, snn, sen float64
+	for _, p := range pts {
+		de, dn := p[0]-me, p[1]-mn
+		see, snn, sen = see+de*de, snn+dn*dn, sen+de*dn
+	}
+	if see+snn < 1 {
+		return math.NaN()
+	}
+	// The principal axis's angle from east, then as an azimuth.
+	th := 0.5 * math.Atan2(2*sen, see-snn)
+	track := math.Mod(90-th*180/math.Pi+360, 180)
+	// The azimuths' median on the half circle: doubled angles averaged.
+	var c, s float64
+	for _, a := range az {
+		c += math.Cos(2 * a * math.Pi / 180)
+		s += math.Sin(2 * a * math.Pi / 180)
+	}
+	mean := math.Mod(math.Atan2(s, c)*90/math.Pi+360, 180)
+	d := math.Abs(math.Remainder(track-mean, 180))
+	return d
+}
