@@ -133,10 +133,7 @@ func newSurveyIn(p *Problem, scr *scratch) *survey {
 	sv.extent = ext
 	cee, cen, cnn = cee/float64(n), cen/float64(n), cnn/float64(n)
 	// Eigen decomposition of the 2x2 horizontal covariance.
-	tr, det := cee+cnn, cee*cnn-cen*cen
-	disc := math.Sqrt(math.Max(tr*tr/4-det, 0))
-	l1, l2 := tr/2+disc, math.Max(tr/2-disc, 0)
-	ang := 0.5 * math.Atan2(2*cen, cee-cnn)
+	l1, l2, ang := PlanPrincipal(cee, cnn, cen)
 	sv.t1 = [3]float64{math.Cos(ang), math.Sin(ang), 0}
 	sv.spread = [2]float64{math.Sqrt(l1), math.Sqrt(l2)}
 	sv.single = sv.spread[1] < singleTraverseRatio*sv.spread[0]

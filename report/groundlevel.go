@@ -84,18 +84,9 @@ func localSensorZ(pts [][3]float64, at [3]float64) (z, se float64, ok bool) {
 		snn += nn * nn
 		sen += e * nn
 	}
-	tr, det := see+snn, see*snn-sen*sen
-	l1 := tr/2 + math.Sqrt(math.Max(tr*tr/4-det, 0))
-	l2 := tr/2 - math.Sqrt(math.Max(tr*tr/4-det, 0))
+	l1, l2, ang := inverse.PlanPrincipal(see, snn, sen)
 	// Unit vectors along the principal directions.
-	u := [2]float64{1, 0}
-	if math.Abs(sen) > 1e-12 {
-		u = [2]float64{l1 - snn, sen}
-	} else if snn > see {
-		u = [2]float64{0, 1}
-	}
-	m := math.Hypot(u[0], u[1])
-	u = [2]float64{u[0] / m, u[1] / m}
+	u := [2]float64{math.Cos(ang), math.Sin(ang)}
 	v := [2]float64{-u[1], u[0]}
 	// Coordinates along the directions that are spread (over 5 cm sd).
 	var axes [][2]float64

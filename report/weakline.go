@@ -209,16 +209,13 @@ func alongClause(f *Fit) string {
 		syy += dy * dy
 		sxy += dx * dy
 	}
-	// Eigenvalues of the 2x2 scatter matrix: the spreads along and across
-	// the line of readings.
-	tr, det := sxx+syy, sxx*syy-sxy*sxy
-	disc := math.Sqrt(math.Max(tr*tr/4-det, 0))
-	major, minor := tr/2+disc, math.Max(tr/2-disc, 0)
+	// The spreads along and across the line of readings, and its
+	// direction (az from east, anticlockwise).
+	major, minor, az := inverse.PlanPrincipal(sxx, syy, sxy)
 	if !(major > 0) || math.Sqrt(minor/major) > alongRatio {
 		return ""
 	}
 	// The direction of travel, as a bearing east of north.
-	az := 0.5 * math.Atan2(2*sxy, sxx-syy) // from east, anticlockwise
 	bearing := math.Mod(90-az*180/math.Pi+360, 180)
 	return fmt.Sprintf("; a conductor running along this group's line of readings (bearing %.0f° or %.0f°) cannot be seen from it at all: its field is the same at every reading, and the background takes it, so walk traverses across it to find one",
 		bearing, bearing+180)

@@ -7,6 +7,7 @@ import (
 
 	"undercurrent/calibrate"
 	"undercurrent/ingest"
+	"undercurrent/inverse"
 )
 
 // Checks of a survey that catch a confident wrong answer: a whole route
@@ -176,16 +177,13 @@ func groupDirections(s *ingest.Samples) [][2]float64 {
 		e := by[g]
 		mx, my := e.x/e.n, e.y/e.n
 		sxx, syy, sxy := e.xx/e.n-mx*mx, e.yy/e.n-my*my, e.xy/e.n-mx*my
-		tr, det := sxx+syy, sxx*syy-sxy*sxy
-		disc := math.Sqrt(math.Max(tr*tr/4-det, 0))
-		major, minor := tr/2+disc, math.Max(tr/2-disc, 0)
+		major, minor, a := inverse.PlanPrincipal(sxx, syy, sxy)
 		if !(major > 1e-4) {
 			continue // a fixed sensor: no direction of travel
 		}
 		if math.Sqrt(minor/major) > straightRatio {
 			return nil
 		}
-		a := 0.5 * math.Atan2(2*sxy, sxx-syy)
 		dirs = append(dirs, [2]float64{math.Cos(a), math.Sin(a)})
 	}
 	return dirs
