@@ -229,7 +229,7 @@ func refitWithout(f *Fit, lines int, kept ...*dipoleSearch) (*inverse.Result, bo
 		var fk [][3]float64
 		var pk [][3]complex128
 		q, fk, pk = without(q, k.moment, k.momentAt, k.obj.Point)
-		field, phasors = addField(field, fk), addPhasors(phasors, pk)
+		field, phasors = addField(field, fk), addField(phasors, pk)
 	}
 	var fs inverse.Settings
 	if f.Settings != nil {
@@ -306,21 +306,9 @@ func sameObjectFindings(fits []Fit, r *route.Route) {
 	}
 }
 
-// addField returns the sum of two per-reading fields, either nil.
-func addField(a, b [][3]float64) [][3]float64 {
-	if a == nil {
-		return b
-	}
-	for i := range b {
-		for ax := range 3 {
-			a[i][ax] += b[i][ax]
-		}
-	}
-	return a
-}
-
-// addPhasors returns the sum of two per-reading phasor fields, either nil.
-func addPhasors(a, b [][3]complex128) [][3]complex128 {
+// addField returns the sum of two per-reading fields (DC, or AC
+// phasors), either nil; a's storage is reused.
+func addField[T float64 | complex128](a, b [][3]T) [][3]T {
 	if a == nil {
 		return b
 	}

@@ -412,25 +412,7 @@ func (w *assetWorker) misfitSensor(sum *SolveInput, reds []*reduced) (string, bo
 	}
 	found := ""
 	for k := range names {
-		sub := SolveInput{WindowSigma: sum.WindowSigma, Sigma: sum.Sigma}
-		for i := range names {
-			if i == k {
-				continue
-			}
-			sub.Points = append(sub.Points, sum.Points[i])
-			if sum.Fields != nil {
-				sub.Fields = append(sub.Fields, sum.Fields[i])
-			}
-			if sum.Phasors != nil {
-				sub.Phasors = append(sub.Phasors, sum.Phasors[i])
-			}
-			if i < len(sum.Sigmas) {
-				sub.Sigmas = append(sub.Sigmas, sum.Sigmas[i])
-			}
-		}
-		if len(sub.Sigmas) != len(sub.Points) {
-			sub.Sigmas = nil
-		}
+		sub := sum.without(k)
 		if _, err := w.svc.commissioner.Commission(&sub, w.asset.Conductors); err == nil {
 			if found != "" {
 				return "", false

@@ -28,6 +28,32 @@ type SolveInput struct {
 }
 
 // SolveOutput holds the strengths in the order of the conductors.
+// without returns in with its k-th sensor's entries (point, field or
+// phasor, sigma) left out, the rest shared with in; Sigma and WindowSigma
+// are kept, and Sigmas dropped when they do not cover every sensor.
+func (in *SolveInput) without(k int) SolveInput {
+	out := SolveInput{Sigma: in.Sigma, WindowSigma: in.WindowSigma}
+	for i := range in.Points {
+		if i == k {
+			continue
+		}
+		out.Points = append(out.Points, in.Points[i])
+		if i < len(in.Fields) {
+			out.Fields = append(out.Fields, in.Fields[i])
+		}
+		if i < len(in.Phasors) {
+			out.Phasors = append(out.Phasors, in.Phasors[i])
+		}
+		if i < len(in.Sigmas) {
+			out.Sigmas = append(out.Sigmas, in.Sigmas[i])
+		}
+	}
+	if len(out.Sigmas) != len(out.Points) {
+		out.Sigmas = nil
+	}
+	return out
+}
+
 type SolveOutput struct {
 	Current, CurrentSigma []float64 // A
 	Phase, PhaseSigma     []float64 // degrees (AC), nil for DC

@@ -91,16 +91,6 @@ func (r *reduced) without(k int) *reduced {
 			continue
 		}
 		o.used = append(o.used, r.used[i])
-		o.in.Points = append(o.in.Points, r.in.Points[i])
-		if i < len(r.in.Fields) {
-			o.in.Fields = append(o.in.Fields, r.in.Fields[i])
-		}
-		if i < len(r.in.Phasors) {
-			o.in.Phasors = append(o.in.Phasors, r.in.Phasors[i])
-		}
-		if i < len(r.in.Sigmas) {
-			o.in.Sigmas = append(o.in.Sigmas, r.in.Sigmas[i])
-		}
 		if i < len(r.totals) {
 			o.totals = append(o.totals, r.totals[i])
 		}
@@ -112,7 +102,7 @@ func (r *reduced) without(k int) *reduced {
 			o.samples += r.counts[i]
 		}
 	}
-	o.in.Sigma = r.in.Sigma
+	o.in = r.in.without(k)
 	if len(o.in.Sigmas) > 0 {
 		sorted := append([]float64(nil), o.in.Sigmas...)
 		sort.Float64s(sorted)
