@@ -25,7 +25,10 @@ import (
 // distance expected is worked here by the spherical law of cosines, a
 // formula apart from the code's haversine (from memory, Boulder to northern
 // England is about 7,200 km). The near copy has its header moved to
-// 55.314° N, 356.794° E (about 130 km from the survey).
+// 55.314° N, 356.794° E (about 130 km from the survey). Both places are
+// printed with longitudes from -180 to 180 (254.763° E is -105.237°):
+// before, the file's 254.763 stood beside the survey's -2.088 (found in
+// review).
 func TestLocateFarObservatoryBaseWarned(t *testing.T) {
 	dir := t.TempDir()
 	_, path := scenario(t, "kestrel-moor-step.toml")
@@ -75,7 +78,7 @@ func TestLocateFarObservatoryBaseWarned(t *testing.T) {
 	if code != 0 {
 		t.Fatalf("far base: exit %d\n%s", code, out)
 	}
-	m := regexp.MustCompile(`base record \S+ \(Boulder, BOU\) lies at latitude 40\.137°, longitude 254\.763°, (\d+) km from the survey`).FindStringSubmatch(out)
+	m := regexp.MustCompile(`base record \S+ \(Boulder, BOU\) lies at latitude 40\.137°, longitude -105\.237°, (\d+) km from the survey \(latitude 54\.31\d°, longitude -2\.08\d°\)`).FindStringSubmatch(out)
 	if m == nil {
 		t.Fatalf("no warning that the Boulder base is far from the survey:\n%s", out)
 	}

@@ -329,5 +329,5 @@ func baseFarWarning(basePath string, base *ingest.Samples, origin *[2]float64) s
 	// Local time runs 1 hour per 15° of longitude.
 	hours := math.Abs(math.Remainder(lon-origin[1], 360)) / 15
 	return fmt.Sprintf("the base record %s%s lies at latitude %.3f°, longitude %.3f°, %.0f km from the survey (latitude %.3f°, longitude %.3f°) and %.1f hours of local time apart: the daily variation changes with latitude and follows local time, so a base record stands for a survey's variation only within about a few hundred km (%d km taken here, common practice); removing a far station's variation can add tens of nT of drift that is not the survey's. Use a base magnetometer at the site or the nearest observatory's record, or check the drift without --base",
-		basePath, name, lat, lon, km, origin[0], origin[1], hours, baseFarKm)
+		basePath, name, lat, math.Remainder(lon, 360), km, origin[0], math.Remainder(origin[1], 360), hours, baseFarKm)
 }

@@ -44,7 +44,11 @@ const (
 // (under 4 altMinFreq) or too short for a stretch of 64 evenly spaced
 // readings.
 func alternatingLine(s *ingest.Samples) (freq, rms, share float64, ok bool) {
-	fs := logRate(s)
+	// The rate from the log's span, and runs broken only at real gaps
+	// (dcClock): time stamps rounded to the millisecond or jittered left
+	// no stretch evenly spaced to a per cent, and the mains went unseen
+	// (found in review).
+	fs, gap := dcClock(s)
 	if !(fs >= 4*altMinFreq) || s.Len() < 64 {
 		return 0, 0, 0, false
 	}
@@ -52,7 +56,6 @@ func alternatingLine(s *ingest.Samples) (freq, rms, share float64, ok bool) {
 	for n*2 <= min(65536, int(fs)) {
 		n *= 2
 	}
-	dt := 1 / fs
 	fft := fourier.NewFFT(n)
 	power := make([]float64, n/2+1)
 	seq := make([]float64, n)
@@ -68,11 +71,11 @@ func alternatingLine(s *ingest.Samples) (freq, rms, share float64, ok bool) {
 	segs := 0
 	cols := [3][]float64{s.Bx, s.By, s.Bz}
 	for lo := 0; lo+n <= s.Len() && segs < altMaxSegments; {
-		// Evenly spaced, in one group, finite: else start after the break.
+		// No gap, in one group, finite: else start after the break.
 		bad := -1
 		for i := lo + 1; i < lo+n; i++ {
 			st := s.Time[i] - s.Time[i-1]
-			if math.Abs(st-dt) > 0.01*dt || (s.Group != nil && s.Group[i] != s.Group[lo]) {
+			if st < 0 || st > gap || (s.Group != nil && s.Group[i] != s.Group[lo]) {
 				bad = i
 				break
 			}
@@ -154,7 +157,7 @@ func alternatingWarning(path string, s *ingest.Samples, mains float64) string {
 	if !ok || share < altShare {
 		return ""
 	}
-	fs := logRate(s)
+	fs, _ := dcClock(s)
 	cands := []float64{50, 60}
 	if mains > 0 {
 		cands = []float64{mains}

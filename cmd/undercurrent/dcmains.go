@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"math/cmplx"
+	"sort"
 	"strings"
 
 	"undercurrent/ingest"
@@ -33,6 +34,11 @@ const (
 	// dcMainsMaxBlock is the longest block, s: five cycles at 50 Hz,
 	// 6 cm at a walking pace, far under a buried conductor's anomaly.
 	dcMainsMaxBlock = 0.1
+	// dcMainsMaxLeft is the largest share of a log's readings the
+	// averaging may leave out (at gaps and group ends) before the log is
+	// fitted as it is instead: a log missing 2% of its readings at random
+	// loses about 6% of them in blocks of 7, and averages well.
+	dcMainsMaxLeft = 0.1
 )
 
 // parseDCMains reads --dc-mains: "auto" (0, auto true), "off" (0, false),
@@ -62,22 +68,84 @@ func mainsLeft(f, fs float64, n int) float64 {
 }
 
 // mainsBlock returns n, the readings whose mean spans whole cycles of the
-// mains at f for a log at rate fs (the triangle's blocks are 2n-1 long):
-// the fewest, of at least two readings and m cycles at most
-// dcMainsMaxBlock long, whose triangle leaves at most dcMainsReject of the
-// mains (5 at 256 Hz and 50 Hz, 5.12 per cycle: 0.07%); 0 when the rate
-// cannot (too slow: the mains alias onto the direct current's band).
-func mainsBlock(f, fs float64) int {
+// mains at f for a log at rate fs (the triangle's blocks are 2n-1 long),
+// and the share of the mains' amplitude the triangle leaves. A block that
+// is a whole number of cycles within rounding (a fiftieth of a reading)
+// is taken first, the shortest of them up to dcMainsMaxBlock: it cancels
+// the mains (10 readings, 3 cycles, at 200 Hz and 60 Hz, where the fewest
+// leaving under dcMainsReject were 7 readings, 35 ms for 33.3, which left
+// 3 nT of a strong cable's field; found in review). Else the fewest, of
+// at least two readings and m cycles at most dcMainsMaxBlock long, whose
+// triangle leaves at most dcMainsReject of the mains (5 at 256 Hz and
+// 50 Hz, 5.12 per cycle: 0.07%). n is 0 when the rate cannot (too slow:
+// the mains alias onto the direct current's band).
+func mainsBlock(f, fs float64) (int, float64) {
 	if !(f > 0) || !(fs > 2*f*0.999) {
-		return 0
+		return 0, 0
+	}
+	for m := 1; float64(m)/f <= dcMainsMaxBlock*1.0001; m++ {
+		x := float64(m) * fs / f
+		if n := int(math.Round(x)); n >= 2 && math.Abs(x-float64(n)) <= 0.02 {
+			l := mainsLeft(f, fs, n)
+			return n, l * l
+		}
 	}
 	for m := 1; float64(m)/f <= dcMainsMaxBlock*1.0001; m++ {
 		n := int(math.Round(float64(m) * fs / f))
 		if l := mainsLeft(f, fs, n); n >= 2 && l*l <= dcMainsReject {
-			return n
+			return n, l * l
 		}
 	}
-	return 0
+	return 0, 0
+}
+
+// dcClock returns the log's reading rate, Hz, taken from its span (the
+// readings over their elapsed time, summed over the runs between gaps),
+// and the longest step between successive readings that is no gap, s.
+// Time stamps rounded to the millisecond (a 256 Hz log steps 3 or 4 ms)
+// or jittered by the logger's clock put the median step off the interval
+// and most steps off it by more than a per cent: the rate read 250 Hz for
+// 256, and every such step was a break where the averaging left readings
+// out (16% of one log; 44006 of 44011 with +-0.2 ms of jitter in a 200 Hz
+// log; found in review). A gap is a step back in time or one over half an
+// interval longer than the interval, plus the stamps' resolution when it
+// is coarser than half an interval (a log faster than its stamps); a
+// change of group ends a run too.
+func dcClock(s *ingest.Samples) (fs, gap float64) {
+	same := func(i int) bool { return s.Group == nil || s.Group[i] == s.Group[i-1] }
+	var d []float64
+	for i := 1; i < len(s.Time); i++ {
+		if st := s.Time[i] - s.Time[i-1]; st > 0 && same(i) {
+			d = append(d, st)
+		}
+	}
+	if len(d) == 0 {
+		return 0, 0
+	}
+	sort.Float64s(d)
+	dt := d[len(d)/2]
+	q := 0.0
+	for i := 1; i < len(s.Time); i++ {
+		if st := s.Time[i] - s.Time[i-1]; st >= 0 && st <= 0.5*dt && same(i) {
+			q = d[0]
+			break
+		}
+	}
+	span := func(gap float64) float64 {
+		var steps, el float64
+		for i := 1; i < len(s.Time); i++ {
+			if st := s.Time[i] - s.Time[i-1]; st >= 0 && st <= gap && same(i) {
+				steps++
+				el += st
+			}
+		}
+		if !(el > 0) {
+			return 1 / dt
+		}
+		return steps / el
+	}
+	fs = span(1.5*dt + q)
+	return fs, 1.5/fs + q
 }
 
 // triangle returns the weights of a block of 2n-1 readings, the mean of
@@ -97,12 +165,13 @@ func triangle(n int) []float64 {
 }
 
 // averageBlocks returns s averaged in blocks of len(w) readings, weighted
-// by w: each block successive readings evenly spaced at 1/fs, in one
-// group, with finite field readings; a block's reading is their weighted
+// by w: each block successive readings of one group with finite field
+// readings, no step between them a gap (longer than gap, or back in time;
+// see dcClock); a block's reading is their weighted
 // mean (time, position, field, temperature, F) and its middle reading's
 // attitude. Readings that make no whole block (at a break, a group's end)
 // are left out; their count is returned.
-func averageBlocks(s *ingest.Samples, w []float64, fs float64) (*ingest.Samples, int) {
+func averageBlocks(s *ingest.Samples, w []float64, gap float64) (*ingest.Samples, int) {
 	n := len(w)
 	out := &ingest.Samples{Source: s.Source, Frame: s.Frame, Origin: s.Origin, Meta: s.Meta, NoTime: s.NoTime,
 		Absent: s.Absent, Warnings: s.Warnings, InFrame: s.InFrame, InFrameStated: s.InFrameStated}
@@ -114,14 +183,13 @@ func averageBlocks(s *ingest.Samples, w []float64, fs float64) (*ingest.Samples,
 		{&s.Roll, &out.Roll}, {&s.Pitch, &out.Pitch}, {&s.Yaw, &out.Yaw},
 		{&s.Qw, &out.Qw}, {&s.Qx, &out.Qx}, {&s.Qy, &out.Qy}, {&s.Qz, &out.Qz},
 	}
-	dt := 1 / fs
 	left := 0
 	ok := func(i int) bool {
 		return finite(s.Bx[i]) && finite(s.By[i]) && finite(s.Bz[i])
 	}
 	for lo := 0; lo < s.Len(); {
 		hi := lo + 1
-		for hi < lo+n && hi < s.Len() && ok(hi-1) && math.Abs(s.Time[hi]-s.Time[hi-1]-dt) <= 0.01*dt &&
+		for hi < lo+n && hi < s.Len() && ok(hi-1) && s.Time[hi] >= s.Time[hi-1] && s.Time[hi]-s.Time[hi-1] <= gap &&
 			(s.Group == nil || s.Group[hi] == s.Group[lo]) {
 			hi++
 		}
@@ -160,22 +228,25 @@ func averageBlocks(s *ingest.Samples, w []float64, fs float64) (*ingest.Samples,
 // was done), a note saying what was done and an alert (the alternating
 // field left in, with advice), either "".
 func dcMains(o *locateOptions, path string, s *ingest.Samples) (*ingest.Samples, string, string) {
+	fs, gap := dcClock(s)
 	if !o.dcMainsAuto && o.dcMains == 0 {
 		if w := alternatingWarning(path, s, 0); w != "" {
 			w += "; --dc-mains off kept the readings as they are"
-			if fs := logRate(s); mainsBlock(50, fs) > 0 || mainsBlock(60, fs) > 0 {
+			if n50, _ := mainsBlock(50, fs); n50 > 0 {
+				w += " (this log's rate holds whole mains cycles: --dc-mains 50 or 60 averages them away)"
+			} else if n60, _ := mainsBlock(60, fs); n60 > 0 {
 				w += " (this log's rate holds whole mains cycles: --dc-mains 50 or 60 averages them away)"
 			}
 			return s, "", w
 		}
 		return s, "", ""
 	}
-	fs := logRate(s)
 	f := o.dcMains
 	why := fmt.Sprintf("--dc-mains %g", f)
+	line, rms, share, found := alternatingLine(s)
+	found = found && share >= altShare
 	if f == 0 {
-		line, rms, share, ok := alternatingLine(s)
-		if !ok || share < altShare {
+		if !found {
 			return s, "", ""
 		}
 		for _, m := range []float64{50, 60} {
@@ -188,7 +259,7 @@ func dcMains(o *locateOptions, path string, s *ingest.Samples) (*ingest.Samples,
 		}
 		why = fmt.Sprintf("the field alternates at about %.3g Hz (%.3g nT RMS per component, %.0f%% of the readings' variation about their trends), the %g Hz mains", line, rms, 100*math.Min(1, share), f)
 	}
-	n := mainsBlock(f, fs)
+	n, rest := mainsBlock(f, fs)
 	if n == 0 {
 		w := alternatingWarning(path, s, f)
 		if w != "" && o.dcMains != 0 {
@@ -200,16 +271,42 @@ func dcMains(o *locateOptions, path string, s *ingest.Samples) (*ingest.Samples,
 		return s, "", w
 	}
 	w := triangle(n)
-	avg, left := averageBlocks(s, w, fs)
-	if avg.Len() < 3 {
-		return s, "", alternatingWarning(path, s, f)
+	avg, left := averageBlocks(s, w, gap)
+	if avg.Len() < 3 || float64(left) > dcMainsMaxLeft*float64(s.Len()) {
+		// Averaging that would leave out much of the log (readings
+		// stamped too unevenly to make whole blocks) is not done: before,
+		// a jittered log kept 5 of 44011 readings and 8 of 11 traverses
+		// vanished from the table (found in review).
+		msg := fmt.Sprintf("%s: %s, but averaging over whole cycles in blocks of %d readings would leave out %d of the %d readings (at gaps in the time stamps, steps over %.3g ms, and group ends), so the readings are fitted as they are; check the log's time stamps", path, why, len(w), left, s.Len(), 1000*gap)
+		if a := alternatingWarning(path, s, f); a != "" {
+			msg += "; " + strings.TrimPrefix(a, path+": ")
+		}
+		return s, "", msg
 	}
-	note := fmt.Sprintf("%s: %s, so the readings were averaged over whole cycles before the DC fits, in blocks of %d (%.3g ms) weighted as a triangle, the mean of %s (%s at %.4g Hz) taken over again: the mains and their harmonics, even with an amplitude changing along the walk, cancel to under %.2g%%; %d readings became %d",
-		path, why, len(w), 1000*float64(len(w))/fs, plural(n, "reading"), plural(int(math.Round(float64(n)*f/fs)), "cycle"), fs, 100*dcMainsReject, s.Len(), avg.Len())
+	cancel := "cancel (each block spans whole cycles)"
+	if rest > 1e-6 {
+		cancel = fmt.Sprintf("are left at about %.2g%% of their amplitude (no block of whole cycles up to %g s at this rate)", 100*rest, dcMainsMaxBlock)
+	}
+	note := fmt.Sprintf("%s: %s, so the readings were averaged over whole cycles before the DC fits, in blocks of %d (%.3g ms) weighted as a triangle, the mean of %s (%s at %.4g Hz) taken over again: the mains, even with an amplitude changing along the walk, %s; %d readings became %d",
+		path, why, len(w), 1000*float64(len(w))/fs, plural(n, "reading"), plural(int(math.Round(float64(n)*f/fs)), "cycle"), fs, cancel, s.Len(), avg.Len())
 	if left > 0 {
-		note += fmt.Sprintf(", %d left out at breaks and group ends (no whole block)", left)
+		note += fmt.Sprintf(", %d left out at gaps in the time stamps and group ends (no whole block)", left)
 	}
-	return avg, note + fmt.Sprintf("; to locate the AC conductor instead, give --freq %g; --dc-mains off fits the readings as they are", f), ""
+	note += fmt.Sprintf("; to locate the AC conductor instead, give --freq %g; --dc-mains off fits the readings as they are", f)
+	alert := ""
+	if o.dcMains != 0 && found && math.Abs(line-f) >= 0.02*f {
+		// The flag's frequency against the field's own line (a crew's
+		// setting carried over from the other mains country left 20 nT
+		// in, and said the mains cancelled; found in review).
+		l := mainsLeft(line, fs, n)
+		alert = fmt.Sprintf("%s: --dc-mains %g, but the field's own line is at about %.3g Hz (%.3g nT RMS per component, %.0f%% of the readings' variation about their trends), which blocks of whole %g Hz cycles leave at about %.2g%% of its amplitude; the fits may miss the readings", path, f, line, rms, 100*math.Min(1, share), f, 100*l*l)
+		for _, m := range []float64{50, 60} {
+			if m != f && math.Abs(line-m) < 0.02*m {
+				alert += fmt.Sprintf(": it is the %g Hz mains, give --dc-mains %g (or auto)", m, m)
+			}
+		}
+	}
+	return avg, note, alert
 }
 
 // slowMainsAdvice says how to keep a DC survey whose log is too slow to

@@ -112,7 +112,7 @@ func Build(stations []Station, set *Settings) (*Route, error) {
 		r.Findings = append(r.Findings, f)
 	}
 	r.Findings = append(r.Findings, weakSources(r.Stations, set)...)
-	r.Findings = append(r.Findings, unsearched(r.Stations)...)
+	r.Findings = append(r.Findings, unsearched(r.Stations, r.Findings)...)
 	sort.SliceStable(r.Findings, func(i, j int) bool {
 		a, b := &r.Findings[i], &r.Findings[j]
 		if a.From != b.From {

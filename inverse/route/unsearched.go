@@ -17,8 +17,11 @@ const unsearchedMin = 2
 // only how much the current changed across the whole stretch. Before, 13
 // failed traverses (650 m of a pipeline beside a mains cable) left the
 // profile with a hole and no word, and its coating defect unreported
-// (found in review).
-func unsearched(ps []Placed) []Finding {
+// (found in review). A step finding in found that spans the stretch is
+// placed only to it: the caution then says so, and that another step
+// within the stretch would not be found, rather than that a step there
+// would not be found beside the step reported (found in review).
+func unsearched(ps []Placed, found []Finding) []Finding {
 	var out []Finding
 	for i := 0; i < len(ps); {
 		if ps[i].usable() {
@@ -46,8 +49,18 @@ func unsearched(ps []Placed) []Finding {
 			}
 			d := b.Current - a.Current
 			sd := math.Hypot(a.CurrentSigma, b.CurrentSigma)
-			msg := fmt.Sprintf("no current step can be searched for between %s (chainage %.1f m) and %s (%.1f m), %.0f m of the route: the %d stations between them (%s to %s) give no usable current, so a step there (current leaving or joining) would not be found; across the whole stretch the current changes by %+.3g ± %.2g A (%s %.4g A, %s %.4g A). Survey it again, or find why those fits failed",
-				a.Key, a.Chainage, b.Key, b.Chainage, b.Chainage-a.Chainage, j-i, ps[i].Key, ps[j-1].Key, d, sd, a.Key, a.Current, b.Key, b.Current)
+			spanned := false
+			for _, f := range found {
+				if f.Kind == KindCurrentStep && f.From <= a.Chainage+1e-6 && f.To >= b.Chainage-1e-6 {
+					spanned = true
+				}
+			}
+			what := "so a step there (current leaving or joining) would not be found"
+			if spanned {
+				what = "so the step found across this stretch is placed only to it, not within it, and any other step within it (current leaving or joining) would not be found"
+			}
+			msg := fmt.Sprintf("no current step can be searched for between %s (chainage %.1f m) and %s (%.1f m), %.0f m of the route: the %d stations between them (%s to %s) give no usable current, %s; across the whole stretch the current changes by %+.3g ± %.2g A (%s %.4g A, %s %.4g A). Survey it again, or find why those fits failed",
+				a.Key, a.Chainage, b.Key, b.Chainage, b.Chainage-a.Chainage, j-i, ps[i].Key, ps[j-1].Key, what, d, sd, a.Key, a.Current, b.Key, b.Current)
 			out = append(out, Finding{
 				Kind:     KindUnsearched,
 				Severity: SeverityCaution,

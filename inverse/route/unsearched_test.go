@@ -47,3 +47,42 @@ func TestUnsearchedStretchNamed(t *testing.T) {
 		}
 	}
 }
+
+// TestUnsearchedBesideStepAcross: a route of 11 stations 20 m apart
+// carrying 2.0 A that falls to 1.6 A at 100 m (simulated truth, no noise)
+// whose stations T02-T08 failed: the step is found across the stretch
+// from T01 to T09, and the caution naming that stretch says the step is
+// placed only to it and that another step within it would not be found,
+// not that a step there would not be found. Before, the two findings,
+// printed one after the other, read as a contradiction (found in review).
+func TestUnsearchedBesideStepAcross(t *testing.T) {
+	st := make([]Station, 11)
+	for i := range st {
+		x := float64(i) * 20
+		cur := 2.0
+		if x > 100 {
+			cur = 1.6
+		}
+		st[i] = Station{Key: key(i), Point: [3]float64{x, 0, -1.5}, Dir: [3]float64{1, 0, 0},
+			Current: cur, CurrentSigma: 0.01, Depth: 1.5, DepthSigma: 0.01, OK: true}
+		if i >= 2 && i <= 8 {
+			st[i].OK, st[i].Problem = false, "no current found"
+			st[i].Current, st[i].CurrentSigma = 0, 0
+		}
+	}
+	r, err := Build(st, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(findings(r, KindCurrentStep)) != 1 {
+		t.Fatalf("want one step across the failed stretch: %+v", r.Findings)
+	}
+	got := findings(r, KindUnsearched)
+	if len(got) != 1 {
+		t.Fatalf("%d unsearched findings, want 1", len(got))
+	}
+	if strings.Contains(got[0].Message, "a step there (current leaving or joining) would not be found") ||
+		!strings.Contains(got[0].Message, "the step found across this stretch is placed only to it") {
+		t.Errorf("the caution contradicts the step found across the stretch: %s", got[0].Message)
+	}
+}
