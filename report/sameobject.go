@@ -150,6 +150,11 @@ func heldObjectFit(f *Fit, own, kept *dipoleSearch, keptKey string) (*inverse.Re
 	out.Notes = append(out.Notes, fmt.Sprintf(
 		"the field of the magnetised object found at %s (a point dipole at east %.2f m, north %.2f m, %.2f m down, as fitted there) is taken out of these readings before the conductors are fitted: this traverse sees the same object, which its own fit placed within its sigmas of that position",
 		keptKey, o.Point[0], o.Point[1], o.Depth))
+	if widen := tailSigma(f, out, kept); widen > 0 {
+		out.Notes = append(out.Notes, fmt.Sprintf(
+			"the current's sigma holds the uncertainty of that object's field (its position and moment within their sigmas move the current here by %.2g A): widened from %.2g to %.2g A",
+			widen, res0Sigma(out, widen), out.Sources[0].CurrentSigma))
+	}
 	return out, true
 }
 
