@@ -149,8 +149,8 @@ func residualSS(r *inverse.Result) float64 {
 }
 
 // tailSameSpot is the share of an object's depth within which a second
-// object accepted at another traverse is taken for the same one when the
-// tails are refitted (tailObjects).
+// object accepted at another traverse is taken for the same one (sameSpot:
+// merged, mergeSameObjects, and taken out of the tails once, tailObjects).
 const tailSameSpot = 0.25
 
 // tailStep is the share of a sigma by which tailSigma moves an object's
@@ -164,11 +164,12 @@ const tailJump = 3.0
 
 // tailObjects returns the objects of kept whose fields the traverses
 // beside them are refitted without: one per place. Two traverses can
-// each fit the same object and both be kept (mergeSameObjects merges
-// them only when their positions agree within their sigmas, and those
-// can be optimistic): in review (a drum 3.5 m beside a 20 A cable, the
-// traverses either side placing it 2 cm apart, 3.4 sigma in north) both
-// were taken out of a neighbour's readings, the drum's field twice. Each
+// each fit the same object and both be kept: in review (a drum 3.5 m
+// beside a 20 A cable, the traverses either side placing it 2 cm apart,
+// 3.4 sigma in north, which mergeSameObjects then took for two) both were
+// taken out of a neighbour's readings, the drum's field twice.
+// mergeSameObjects now merges them (sameSpot), but keeps both where the
+// merged traverse's refit fails or finds no current. Each
 // fit is one dipole for all the field it saw, so two placed closer than
 // tailSameSpot of the shallower's depth (or within sameObjectK sigmas,
 // sameObject) are one field: only the better placed (the smaller
@@ -196,8 +197,8 @@ func tailObjects(kept []accepted) []accepted {
 }
 
 // sameSpot reports whether objects a and b, fitted at two traverses, are
-// at one place for the tails: sameObject, or closer than tailSameSpot of
-// the shallower one's depth.
+// at one place: sameObject, or closer than tailSameSpot of the shallower
+// one's depth.
 func sameSpot(a, b *route.Object) bool {
 	if sameObject(a, b) {
 		return true
@@ -214,8 +215,10 @@ func sameSpot(a, b *route.Object) bool {
 // 1 m from a drum, whose field there is hundreds of nT) by far more than
 // its own sigma from the noise, which alone gave 19.949 ± 0.0078 A
 // against a true 20 A (-6.5 sigma). So each of an object's six parameters
-// (the moment's three components, the position's three) is moved by
-// tailStep of its sigma either way, the lines refitted (inverse.FitLines,
+// (the moment's three components, the position's three; their sigmas the
+// search's, with the position and the lines' geometry free, not the held
+// fit's narrower moment sigmas) is moved by tailStep of its sigma either
+// way, the lines refitted (inverse.FitLines,
 // as many lines as out holds), and the change of each line's current over
 // the two moves, scaled to one sigma, is its part. A refit that lands in
 // another minimum (a line moved by more than 5% of its depth, turned, or
@@ -224,10 +227,8 @@ func sameSpot(a, b *route.Object) bool {
 // parameter the lines' geometry is held as out's and only their currents
 // and the background refitted (inverse.FitStrengths). The parts add in
 // quadrature, as independent (the correlations of the object's fit are
-// not kept on it), to each line's current variance. The object's sigmas
-// as its own traverse fitted them can be optimistic (two traverses placed
-// one drum 3.4 sigma apart in review), and so can this widening
-// (DEVELOPERS.md, Known limits). It returns the strongest line's
+// not kept on it), to each line's current variance; that can widen too
+// much or too little (DEVELOPERS.md, Known limits). It returns the strongest line's
 // widening, A (the root sum of squares of its parts), zero when nothing
 // was added.
 func tailSigma(f *Fit, out *inverse.Result, near ...*dipoleSearch) float64 {
@@ -306,11 +307,16 @@ func tailSigma(f *Fit, out *inverse.Result, near ...*dipoleSearch) float64 {
 	}
 	for k, ds := range near {
 		for c := range 3 {
+			// The moment's sigma with the position and the lines'
+			// geometry free (the search's), not the held fit's.
 			j := ds.momentAt + c
-			if j >= len(ds.moment.StrengthSigmas) || !(ds.moment.StrengthSigmas[j] > 0) {
+			sig := ds.source.MomentSigma[c]
+			if !(sig > 0) && j < len(ds.moment.StrengthSigmas) {
+				sig = ds.moment.StrengthSigmas[j]
+			}
+			if !(sig > 0) || j >= len(ds.moment.Strengths)+len(ds.moment.StrengthPhasors) {
 				continue
 			}
-			sig := ds.moment.StrengthSigmas[j]
 			shift(near, k, func(ds *dipoleSearch, by float64) *dipoleSearch {
 				m := *ds.moment
 				if m.Strengths != nil {

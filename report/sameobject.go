@@ -40,6 +40,13 @@ import (
 // finds no current, nothing is merged and both objects are reported, as
 // before.
 //
+// Two placed closer together than tailSameSpot of the shallower one's
+// depth are one object too, whatever their sigmas (sameSpot): each fit is
+// one dipole for all the field it saw, and the sigmas can be optimistic
+// (in review a drum 3.5 m beside a cable placed 2 cm apart from the
+// traverses either side, 3.4 sigma in north, reported twice and taken out
+// of the neighbours' readings twice, objecttail.go).
+//
 // Two objects truly a few metres apart are not merged: each fit places its
 // own within centimetres, far more sigmas apart than sameObjectK. An object
 // alone (no conductor under it, searchAlone) seen from two traverses is
@@ -95,7 +102,7 @@ func mergeSameObjects(fits []Fit, acc []accepted) []accepted {
 	for _, a := range order {
 		merged := false
 		for _, k := range kept {
-			if !sameObject(k.ds.obj, a.ds.obj) {
+			if !sameSpot(k.ds.obj, a.ds.obj) {
 				continue
 			}
 			f := &fits[a.fit]
@@ -300,11 +307,11 @@ func sameObjectFindings(fits []Fit, r *route.Route) {
 			if r := g.Result; r != nil && len(r.Sources) > 0 && NoCurrent(&r.Sources[0], g.Problem != nil && g.Problem.Phasors != nil) {
 				// An object alone seen from two traverses
 				// (aloneHeldFit): no conductor there.
-				parts = append(parts, fmt.Sprintf("%s sees the same object (its own fit placed it %.2f m from this position, within %d sigma), and with the object's field taken out of its readings no current is found there",
+				parts = append(parts, fmt.Sprintf("%s sees the same object (its own fit placed it %.2f m from this position, within %d sigma or a quarter of its depth), and with the object's field taken out of its readings no current is found there",
 					where, g.sameOffset, sameObjectK))
 				continue
 			}
-			parts = append(parts, fmt.Sprintf("%s sees the same object (its own fit placed it %.2f m from this position, within %d sigma) and stays on the profile with the object's field taken out of its readings",
+			parts = append(parts, fmt.Sprintf("%s sees the same object (its own fit placed it %.2f m from this position, within %d sigma or a quarter of its depth) and stays on the profile with the object's field taken out of its readings",
 				where, g.sameOffset, sameObjectK))
 		}
 		f.Message += "; " + strings.Join(parts, "; ")
