@@ -155,7 +155,7 @@ func heldObjectFit(f *Fit, own, kept *dipoleSearch, keptKey string) (*inverse.Re
 	}
 	o := kept.obj
 	out.Notes = append(out.Notes, fmt.Sprintf(
-		"the field of the magnetised object found at %s (a point dipole at east %.2f m, north %.2f m, %.2f m down, as fitted there) is taken out of these readings before the conductors are fitted: this traverse sees the same object, which its own fit placed within its sigmas of that position",
+		"the field of the magnetised object found at %s (a point dipole at east %.2f m, north %.2f m, %.2f m down, as fitted there) is taken out of these readings before the conductors are fitted: this traverse sees the same object, which its own fit placed within its sigmas of that position or within a quarter of its depth",
 		keptKey, o.Point[0], o.Point[1], o.Depth))
 	if widen := tailSigma(f, out, kept); widen > 0 {
 		out.Notes = append(out.Notes, fmt.Sprintf(
@@ -197,7 +197,7 @@ func aloneHeldFit(f *Fit, own, kept *dipoleSearch, keptKey string) (*inverse.Res
 	o := kept.obj
 	if out, ok := refitWithout(f, max(lines, 1), kept); ok && NoCurrent(&out.Sources[0], ac) {
 		out.Notes = append(out.Notes, fmt.Sprintf(
-			"the field of the magnetised object found at %s (a point dipole at east %.2f m, north %.2f m, %.2f m down, as fitted there) is taken out of these readings before the conductors are fitted: this traverse sees the same object, which its own fit placed within its sigmas of that position, and no current is left under it",
+			"the field of the magnetised object found at %s (a point dipole at east %.2f m, north %.2f m, %.2f m down, as fitted there) is taken out of these readings before the conductors are fitted: this traverse sees the same object, which its own fit placed within its sigmas of that position or within a quarter of its depth, and no current is left under it",
 			keptKey, o.Point[0], o.Point[1], o.Depth))
 		return out, true
 	}
@@ -216,7 +216,7 @@ func aloneHeldFit(f *Fit, own, kept *dipoleSearch, keptKey string) (*inverse.Res
 		return nil, false
 	}
 	out.Notes = append(append([]string(nil), w.result.Notes...), fmt.Sprintf(
-		"the field of the magnetised object found at %s (a point dipole at east %.2f m, north %.2f m, %.2f m down, as fitted there) is in these readings: this traverse's own fit placed the same object within its sigmas of that position, and with the object so placed taken out of the readings no current is left under it",
+		"the field of the magnetised object found at %s (a point dipole at east %.2f m, north %.2f m, %.2f m down, as fitted there) is in these readings: this traverse's own fit placed the same object within its sigmas of that position or within a quarter of its depth, and with the object so placed taken out of the readings no current is left under it",
 		keptKey, o.Point[0], o.Point[1], o.Depth))
 	return &out, true
 }
