@@ -307,14 +307,31 @@ func (w *assetWorker) commission(win *window) error {
 		return w.commissionStopped(win, fmt.Errorf("live: asset %s: commissioning: %w", w.asset.Name, err))
 	}
 	var unres *unresolvedError
+	if errors.As(err, &unres) && unres.layout {
+		// The currents flow but the sensors cannot place the lines: count
+		// it as a failure that more readings hardly mend, and stop after
+		// commissionLimit of them with an alarm that names the layout.
+		w.misfits++
+		msg := "waiting for a geometry the sensors can fix: " + err.Error()
+		if w.misfits == 1 {
+			w.log.Warn("commissioning cannot place the conductors with this sensor layout; trying again with more data", "err", err, "windows", len(w.pending))
+		}
+		w.waiting = true
+		w.svc.waiting.Store(w.asset.Name, msg)
+		if w.misfits > limit {
+			return w.commissionStopped(win, &needsSiteError{fmt.Errorf("live: asset %s: commissioning failed in each of %d tries, with %g s of readings at the last: %w; "+
+				"more readings of this layout do not place the lines: mend the site file (sensors across the lines, or model = \"fixed\") and restart serve",
+				w.asset.Name, w.misfits, float64(len(fitted))*w.asset.Window.Seconds(), err)})
+		}
+		return nil
+	}
 	if errors.As(err, &unres) {
 		w.misfits = 0
 		if !w.waiting {
-			w.waiting = true
-			msg := "waiting for current: " + err.Error()
 			w.log.Warn("commissioning waits for windows in which the conductors' currents flow: the held windows are published once it is commissioned", "err", err, "windows", len(w.pending))
-			w.svc.waiting.Store(w.asset.Name, msg)
 		}
+		w.waiting = true
+		w.svc.waiting.Store(w.asset.Name, "waiting for current: "+err.Error())
 		return nil
 	}
 	if err != nil {
