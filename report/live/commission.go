@@ -338,6 +338,7 @@ func (w *assetWorker) commission(win *window) error {
 		w.misfits++
 		w.log.Warn("commissioning failed; trying again with more data", "err", err, "windows", len(w.pending))
 		if w.misfits > limit {
+			err = errors.New(w.sensorNames(err.Error()))
 			if name, ok := w.misfitSensor(&sum, fitted); ok {
 				err = fmt.Errorf("%w; without sensor %s the readings commission: its orientation or position in the site file is likely wrong, or it was moved or turned", err, name)
 			}
@@ -427,17 +428,71 @@ func (w *assetWorker) misfitSensor(sum *SolveInput, reds []*reduced) (string, bo
 	if len(names) != len(sum.Points) || len(names) < 3 {
 		return "", false
 	}
-	found := ""
+	type cand struct {
+		name string
+		off  float64 // the largest distance of a line from its site-file point, m
+	}
+	var found []cand
 	for k := range names {
 		sub := sum.without(k)
-		if _, err := w.svc.commissioner.Commission(&sub, w.asset.Conductors); err == nil {
-			if found != "" {
-				return "", false
+		conds, err := w.svc.commissioner.Commission(&sub, w.asset.Conductors)
+		if err != nil {
+			continue
+		}
+		c := cand{name: names[k], off: math.Inf(1)}
+		if pointsOff, ok := offPoints(conds, w.asset.Conductors); ok {
+			c.off = pointsOff
+		}
+		found = append(found, c)
+	}
+	switch {
+	case len(found) == 1:
+		return found[0].name, true
+	case len(found) == 0:
+		return "", false
+	}
+	// Several sensors whose leaving out commissions (with two free lines
+	// and four sensors left, the lines can bend to most readings): prefer
+	// the one whose lines run where the site file's points put them,
+	// clearly nearer than any other's; with no points, none is named.
+	sort.Slice(found, func(i, j int) bool { return found[i].off < found[j].off })
+	if math.IsInf(found[0].off, 1) || !(found[0].off < 0.5*found[1].off) {
+		return "", false
+	}
+	return found[0].name, true
+}
+
+// offPoints is the largest distance of a line of conds from its point in
+// the site file's stated conductors; false when a conductor has no point
+// or no line of its name.
+func offPoints(conds, stated []ConductorConfig) (float64, bool) {
+	var most float64
+	for _, s := range stated {
+		if !s.pointSet {
+			return 0, false
+		}
+		ok := false
+		for _, c := range conds {
+			if c.Name == s.Name && c.Kind != "segment" {
+				most = math.Max(most, norm(perp(sub(s.Point, c.Point), unit(c.Direction))))
+				ok = true
 			}
-			found = names[k]
+		}
+		if !ok {
+			return 0, false
 		}
 	}
-	return found, found != ""
+	return most, len(stated) > 0
+}
+
+// sensorNames writes msg's "the sensor at [x, y, z]" as the sensor's name
+// in the site file.
+func (w *assetWorker) sensorNames(msg string) string {
+	for _, s := range w.asset.Sensors {
+		p := s.Position
+		msg = strings.ReplaceAll(msg, fmt.Sprintf("the sensor at [%g, %g, %g]", p[0], p[1], p[2]), fmt.Sprintf("sensor %s (at [%g, %g, %g])", s.Name, p[0], p[1], p[2]))
+	}
+	return msg
 }
 
 // commissionStopped raises the asset's commissioning alarm for err (a

@@ -277,6 +277,20 @@ func (InverseCommissioner) fit(in *SolveInput, stated []ConductorConfig) ([]Cond
 			return alt, nil
 		}
 		if err != nil {
+			// Both refused: say the diagnosis once. When both miss the
+			// readings, the free fit's refusal is given with how far the
+			// lines through the site file's points miss them.
+			var m1, m2 *misfitError
+			switch {
+			case aerr.Error() == err.Error():
+				return nil, err
+			case errors.As(err, &m1) && errors.As(aerr, &m2):
+				if strings.Contains(aerr.Error(), misfitAtSensor) && !strings.Contains(err.Error(), misfitAtSensor) {
+					// The lines through the points find the sensor.
+					return nil, &misfitError{err: fmt.Errorf("%w (fitted freely, the lines miss them by %.3g nT RMS)", aerr, m1.rms), rms: m2.rms}
+				}
+				return nil, &misfitError{err: fmt.Errorf("%w (the lines fitted from the site file's points miss them by %.3g nT RMS)", err, m2.rms), rms: m1.rms}
+			}
 			return nil, fmt.Errorf("%w (fitted from the site file's points: %v)", err, aerr)
 		}
 		return conds, nil
