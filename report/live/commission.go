@@ -342,10 +342,15 @@ func (w *assetWorker) commission(win *window) error {
 			if name, ok := w.misfitSensor(&sum, fitted); ok {
 				err = fmt.Errorf("%w; without sensor %s the readings commission: its orientation or position in the site file is likely wrong, or it was moved or turned", err, name)
 			}
+			// The likely causes, unless the refusal gave them already.
+			causes := " (an extended conductor such as a flat bar close to the sensors, a bend, another source near the sensors, " +
+				"or a sensor's position or orientation in the site file wrong)"
+			if strings.Contains(err.Error(), "flat bar") {
+				causes = ""
+			}
 			return w.commissionStopped(win, &needsSiteError{fmt.Errorf("live: asset %s: commissioning failed in each of %d tries, with %g s of readings at the last: %w; "+
-				"more readings do not mend a model that misses them (an extended conductor such as a flat bar close to the sensors, a bend, another source near the sensors, "+
-				"or a sensor's position or orientation in the site file wrong): mend the site file (or hold the geometry with model = \"fixed\") and restart serve",
-				w.asset.Name, w.misfits, float64(len(fitted))*w.asset.Window.Seconds(), err)})
+				"more readings do not mend a model that misses them%s: mend the site file (or hold the geometry with model = \"fixed\") and restart serve",
+				w.asset.Name, w.misfits, float64(len(fitted))*w.asset.Window.Seconds(), err, causes)})
 		}
 		return nil
 	}

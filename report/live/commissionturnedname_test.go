@@ -1,11 +1,14 @@
 package live
 
 import (
+	"context"
+	"errors"
 	"math"
 	"math/cmplx"
 	"math/rand/v2"
 	"strings"
 	"testing"
+	"time"
 )
 
 // turnedFenwick returns the mean readings of the Fenwick Lane asset of
@@ -63,5 +66,47 @@ func TestCommissionTurnedSensorNamedRight(t *testing.T) {
 	}
 	if got := w.sensorNames("(" + misfitAtSensor + " [1.5, 0, 0.3]: without it"); !strings.Contains(got, "sensor fl-e2") {
 		t.Errorf("the stop message gives fl-e2 as %q, want it by its name", got)
+	}
+}
+
+// barCommissioner refuses every commissioning as commissionMisfit does
+// for a busbar, its message giving the likely causes.
+type barCommissioner struct{}
+
+func (barCommissioner) Commission(*SolveInput, []ConductorConfig) ([]ConductorConfig, error) {
+	return nil, &misfitError{err: errors.New("the 1 fitted lines miss the commissioning readings by 120 nT RMS, 1e3 times one window's noise: the readings are not those of thin straight lines where the fit put them (an extended conductor such as a flat bar close to the sensors, a bend, or another source near the sensors; or a sensor's position or orientation in the site file wrong)"), rms: 120}
+}
+
+// The stop's alarm gave the likely causes twice (the refusal's, then its
+// own): it now gives them once.
+func TestCommissionStopCausesOnce(t *testing.T) {
+	if testing.Short() {
+		t.Skip("runs a broker and the service")
+	}
+	h := newHarness(t)
+	site := testSite(t, stopSiteText)
+	a := site.Asset("fenwick-lane")
+	svc, err := New(Config{Site: site, Conn: h.nc, Worker: "wk", NewEstimator: newMean, Commissioner: barCommissioner{}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	ctx, cancel := context.WithCancel(context.Background())
+	defer cancel()
+	done := make(chan error, 1)
+	go func() { done <- svc.Run(ctx) }()
+	<-svc.Ready()
+	limit := 20 * int(a.Commission.Seconds()/a.Window.Seconds()+1)
+	h.publish(0, 0.5*float64(limit+4))
+	var ai AssetInfo
+	waitFor(t, 60*time.Second, "the asset stopped", func() bool {
+		ai, err = svc.assetInfo(context.Background(), svc.site.Asset("fenwick-lane"))
+		return err == nil && ai.Stopped != ""
+	})
+	cancel()
+	if err := <-done; err != nil {
+		t.Errorf("Run: %v", err)
+	}
+	if n := strings.Count(ai.Stopped, "flat bar"); n != 1 {
+		t.Errorf("stopped %q gives the causes %d times, want once", ai.Stopped, n)
 	}
 }
