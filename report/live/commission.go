@@ -307,27 +307,50 @@ func (w *assetWorker) commission(win *window) error {
 		return w.commissionStopped(win, fmt.Errorf("live: asset %s: commissioning: %w", w.asset.Name, err))
 	}
 	var unres *unresolvedError
+	if errors.As(err, &unres) && unres.layout {
+		// The currents flow but the sensors cannot place the lines: count
+		// it as a failure that more readings hardly mend, and stop after
+		// commissionLimit of them with an alarm that names the layout.
+		w.misfits++
+		msg := "waiting for a geometry the sensors can fix: " + err.Error()
+		if w.misfits == 1 {
+			w.log.Warn("commissioning cannot place the conductors with this sensor layout; trying again with more data", "err", err, "windows", len(w.pending))
+		}
+		w.waiting = true
+		w.svc.waiting.Store(w.asset.Name, msg)
+		if w.misfits > limit {
+			return w.commissionStopped(win, &needsSiteError{fmt.Errorf("live: asset %s: commissioning failed in each of %d tries, with %g s of readings at the last: %w; "+
+				"more readings of this layout do not place the lines: mend the site file (sensors across the lines, or model = \"fixed\") and restart serve",
+				w.asset.Name, w.misfits, float64(len(fitted))*w.asset.Window.Seconds(), err)})
+		}
+		return nil
+	}
 	if errors.As(err, &unres) {
 		w.misfits = 0
 		if !w.waiting {
-			w.waiting = true
-			msg := "waiting for current: " + err.Error()
 			w.log.Warn("commissioning waits for windows in which the conductors' currents flow: the held windows are published once it is commissioned", "err", err, "windows", len(w.pending))
-			w.svc.waiting.Store(w.asset.Name, msg)
 		}
+		w.waiting = true
+		w.svc.waiting.Store(w.asset.Name, "waiting for current: "+err.Error())
 		return nil
 	}
 	if err != nil {
 		w.misfits++
 		w.log.Warn("commissioning failed; trying again with more data", "err", err, "windows", len(w.pending))
 		if w.misfits > limit {
+			err = errors.New(w.sensorNames(err.Error()))
 			if name, ok := w.misfitSensor(&sum, fitted); ok {
 				err = fmt.Errorf("%w; without sensor %s the readings commission: its orientation or position in the site file is likely wrong, or it was moved or turned", err, name)
 			}
+			// The likely causes, unless the refusal gave them already.
+			causes := " (an extended conductor such as a flat bar close to the sensors, a bend, another source near the sensors, " +
+				"or a sensor's position or orientation in the site file wrong)"
+			if strings.Contains(err.Error(), "flat bar") {
+				causes = ""
+			}
 			return w.commissionStopped(win, &needsSiteError{fmt.Errorf("live: asset %s: commissioning failed in each of %d tries, with %g s of readings at the last: %w; "+
-				"more readings do not mend a model that misses them (an extended conductor such as a flat bar close to the sensors, a bend, another source near the sensors, "+
-				"or a sensor's position or orientation in the site file wrong): mend the site file (or hold the geometry with model = \"fixed\") and restart serve",
-				w.asset.Name, w.misfits, float64(len(fitted))*w.asset.Window.Seconds(), err)})
+				"more readings do not mend a model that misses them%s: mend the site file (or hold the geometry with model = \"fixed\") and restart serve",
+				w.asset.Name, w.misfits, float64(len(fitted))*w.asset.Window.Seconds(), err, causes)})
 		}
 		return nil
 	}
@@ -410,17 +433,71 @@ func (w *assetWorker) misfitSensor(sum *SolveInput, reds []*reduced) (string, bo
 	if len(names) != len(sum.Points) || len(names) < 3 {
 		return "", false
 	}
-	found := ""
+	type cand struct {
+		name string
+		off  float64 // the largest distance of a line from its site-file point, m
+	}
+	var found []cand
 	for k := range names {
 		sub := sum.without(k)
-		if _, err := w.svc.commissioner.Commission(&sub, w.asset.Conductors); err == nil {
-			if found != "" {
-				return "", false
+		conds, err := w.svc.commissioner.Commission(&sub, w.asset.Conductors)
+		if err != nil {
+			continue
+		}
+		c := cand{name: names[k], off: math.Inf(1)}
+		if pointsOff, ok := offPoints(conds, w.asset.Conductors); ok {
+			c.off = pointsOff
+		}
+		found = append(found, c)
+	}
+	switch {
+	case len(found) == 1:
+		return found[0].name, true
+	case len(found) == 0:
+		return "", false
+	}
+	// Several sensors whose leaving out commissions (with two free lines
+	// and four sensors left, the lines can bend to most readings): prefer
+	// the one whose lines run where the site file's points put them,
+	// clearly nearer than any other's; with no points, none is named.
+	sort.Slice(found, func(i, j int) bool { return found[i].off < found[j].off })
+	if math.IsInf(found[0].off, 1) || !(found[0].off < 0.5*found[1].off) {
+		return "", false
+	}
+	return found[0].name, true
+}
+
+// offPoints is the largest distance of a line of conds from its point in
+// the site file's stated conductors; false when a conductor has no point
+// or no line of its name.
+func offPoints(conds, stated []ConductorConfig) (float64, bool) {
+	var most float64
+	for _, s := range stated {
+		if !s.pointSet {
+			return 0, false
+		}
+		ok := false
+		for _, c := range conds {
+			if c.Name == s.Name && c.Kind != "segment" {
+				most = math.Max(most, norm(perp(sub(s.Point, c.Point), unit(c.Direction))))
+				ok = true
 			}
-			found = names[k]
+		}
+		if !ok {
+			return 0, false
 		}
 	}
-	return found, found != ""
+	return most, len(stated) > 0
+}
+
+// sensorNames writes msg's "the sensor at [x, y, z]" as the sensor's name
+// in the site file.
+func (w *assetWorker) sensorNames(msg string) string {
+	for _, s := range w.asset.Sensors {
+		p := s.Position
+		msg = strings.ReplaceAll(msg, fmt.Sprintf("the sensor at [%g, %g, %g]", p[0], p[1], p[2]), fmt.Sprintf("sensor %s (at [%g, %g, %g])", s.Name, p[0], p[1], p[2]))
+	}
+	return msg
 }
 
 // commissionStopped raises the asset's commissioning alarm for err (a

@@ -482,9 +482,9 @@ func commissionMisfit(p *inverse.Problem, windowSigma float64, conds []Conductor
 	if err != nil {
 		return err
 	}
-	if r.RMS > math.Sqrt(maxCommissionChi2)*windowSigma {
-		return &misfitError{fmt.Errorf("the %d fitted lines miss the commissioning readings by %.3g nT RMS, %.3g times one window's noise: the readings are not those of thin straight lines where the fit put them%s",
-			len(conds), r.RMS, r.RMS/windowSigma, misfitAt(p, src, r.RMS))}
+	if limit := math.Sqrt(maxCommissionChi2) * windowSigma; r.RMS > limit {
+		return &misfitError{err: fmt.Errorf("the %d fitted lines miss the commissioning readings by %.3g nT RMS, %.3g times one window's noise: the readings are not those of thin straight lines where the fit put them%s",
+			len(conds), r.RMS, r.RMS/windowSigma, misfitAt(p, src, r.RMS, limit)), rms: r.RMS}
 	}
 	return nil
 }
@@ -492,12 +492,17 @@ func commissionMisfit(p *inverse.Problem, windowSigma float64, conds []Conductor
 // misfitAt says where the lines src miss the readings of p by rms nT
 // RMS: at one sensor, when leaving it out (the currents and background
 // fitted again) takes away nine tenths of the residual sum of squares or
-// more (its position or orientation in the site file is then likely
-// wrong, or it was moved); else at all of them (an extended conductor, a
-// bend, another source, or the lines misplaced).
-func misfitAt(p *inverse.Problem, src []inverse.Source, rms float64) string {
+// more and brings the misfit within limit nT RMS (the one that leaves the
+// least, when several do; its position or orientation in the site file is
+// then likely wrong, or it was moved); else at all of them (an extended
+// conductor, a bend, another source, or the lines misplaced). A sensor
+// whose leaving out does not bring the lines within limit is not named:
+// the lines fitted with a turned sensor lean towards it, and the sensor
+// whose leaving out helps most is then often a healthy neighbour.
+func misfitAt(p *inverse.Problem, src []inverse.Source, rms, limit float64) string {
 	m := readingsPerSensor(p)
 	all := rms * rms * float64(m*len(p.Points))
+	best, bestRMS := -1, math.Inf(1)
 	for k := range p.Points {
 		q := &inverse.Problem{Sigma: p.Sigma}
 		for i := range p.Points {
@@ -516,16 +521,25 @@ func misfitAt(p *inverse.Problem, src []inverse.Source, rms float64) string {
 		if err != nil || r.DOF <= 0 {
 			continue
 		}
-		if rest := r.RMS * r.RMS * float64(m*len(q.Points)); rest <= 0.1*all {
-			pt := p.Points[k]
-			return fmt.Sprintf(" (the misfit is at the sensor at [%g, %g, %g]: without it they miss by %.3g nT RMS; its position or orientation in the site file is likely wrong, or it was moved)", pt[0], pt[1], pt[2], r.RMS)
+		if rest := r.RMS * r.RMS * float64(m*len(q.Points)); rest <= 0.1*all && r.RMS <= limit && r.RMS < bestRMS {
+			best, bestRMS = k, r.RMS
 		}
+	}
+	if best >= 0 {
+		pt := p.Points[best]
+		return fmt.Sprintf(" ("+misfitAtSensor+" [%g, %g, %g]: without it they miss by %.3g nT RMS; its position or orientation in the site file is likely wrong, or it was moved)", pt[0], pt[1], pt[2], bestRMS)
 	}
 	return " (an extended conductor such as a flat bar close to the sensors, a bend, or another source near the sensors; or a sensor's position or orientation in the site file wrong)"
 }
 
+// misfitAtSensor begins misfitAt's naming of one sensor.
+const misfitAtSensor = "the misfit is at the sensor at"
+
 // misfitError is commissionMisfit's refusal.
-type misfitError struct{ err error }
+type misfitError struct {
+	err error
+	rms float64 // how far the lines miss the readings, nT RMS
+}
 
 func (e *misfitError) Error() string { return e.err.Error() }
 func (e *misfitError) Unwrap() error { return e.err }

@@ -54,6 +54,11 @@ func (p *processor) windowChange(r *reduced) *windowSplit {
 		t     []float64
 		cum   [3][]float64 // cumulative sums of the ENU field, cum[k][i] the sum of the first i
 		sigma float64      // one reading's noise per component, nT
+		// slope is the straight line's slope in time of each ENU
+		// component (nT/s), and sxx the sum of the squared times about
+		// their mean (s^2): a ramp's fit.
+		slope [3]float64
+		sxx   float64
 	}
 	ss := make([]sensor, len(r.dc))
 	var ref []float64 // split times: the densest sensor's
@@ -93,6 +98,19 @@ func (p *processor) windowChange(r *reduced) *windowSplit {
 		s.sigma = math.Max(axes[1], p.asset.Noise)
 		if !(s.sigma > 0) {
 			return nil // readings without noise: nothing to judge a change against
+		}
+		tm := mean(d.t)
+		var sxy [3]float64
+		for i, ti := range d.t {
+			s.sxx += (ti - tm) * (ti - tm)
+			for c := range 3 {
+				sxy[c] += (ti - tm) * (s.cum[c][i+1] - s.cum[c][i])
+			}
+		}
+		if s.sxx > 0 {
+			for c := range 3 {
+				s.slope[c] = sxy[c] / s.sxx
+			}
 		}
 		ss[k] = s
 		if len(d.t) > len(ref) {
@@ -141,6 +159,37 @@ func (p *processor) windowChange(r *reduced) *windowSplit {
 		}
 	}
 	if math.IsNaN(bestAt) {
+		return nil
+	}
+	// A two-level split must explain the readings better than a straight
+	// line in time: a current ramping evenly (a rectifier turned up
+	// slowly) is split best near the middle of the window, at a time the
+	// noise picks, with levels many sigma apart, but it has no step. The
+	// ramp's chi-square gain over one level, its non-uniform part as T's
+	// (the slopes less their weighted mean over the sensors, each weighted
+	// by sxx/sigma^2), must be below the split's T. For a ramp without
+	// noise the split's gain is three quarters of the line's at most (the
+	// squared correlation of a step at mid-window with a line).
+	var rw float64
+	var rs [3]float64
+	for _, s := range ss {
+		w := s.sxx / (s.sigma * s.sigma)
+		rw += w
+		for c := range 3 {
+			rs[c] += w * s.slope[c]
+		}
+	}
+	var ramp float64
+	if rw > 0 {
+		for _, s := range ss {
+			w := s.sxx / (s.sigma * s.sigma)
+			for c := range 3 {
+				x := s.slope[c] - rs[c]/rw
+				ramp += w * x * x
+			}
+		}
+	}
+	if !(bestT > ramp) {
 		return nil
 	}
 	part := func(before bool) (*SolveOutput, error) {

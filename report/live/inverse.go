@@ -277,6 +277,20 @@ func (InverseCommissioner) fit(in *SolveInput, stated []ConductorConfig) ([]Cond
 			return alt, nil
 		}
 		if err != nil {
+			// Both refused: say the diagnosis once. When both miss the
+			// readings, the free fit's refusal is given with how far the
+			// lines through the site file's points miss them.
+			var m1, m2 *misfitError
+			switch {
+			case aerr.Error() == err.Error():
+				return nil, err
+			case errors.As(err, &m1) && errors.As(aerr, &m2):
+				if strings.Contains(aerr.Error(), misfitAtSensor) && !strings.Contains(err.Error(), misfitAtSensor) {
+					// The lines through the points find the sensor.
+					return nil, &misfitError{err: fmt.Errorf("%w (fitted freely, the lines miss them by %.3g nT RMS)", aerr, m1.rms), rms: m2.rms}
+				}
+				return nil, &misfitError{err: fmt.Errorf("%w (the lines fitted from the site file's points miss them by %.3g nT RMS)", err, m2.rms), rms: m1.rms}
+			}
 			return nil, fmt.Errorf("%w (fitted from the site file's points: %v)", err, aerr)
 		}
 		return conds, nil
@@ -373,8 +387,15 @@ const (
 
 // unresolvedError is a commissioning fit whose conductors' fields the
 // readings do not resolve (their currents off, or too small for the
-// noise): readings with current would mend it.
-type unresolvedError struct{ err error }
+// noise): readings with current would mend it. layout marks the other
+// kind: every line's field stands out of the noise, but the sensors'
+// layout does not fix where the lines run (their places or bearings
+// trade against each other); more readings hardly mend that, so the
+// worker counts such fits and stops after commissionLimit of them.
+type unresolvedError struct {
+	err    error
+	layout bool
+}
 
 func (e *unresolvedError) Error() string { return e.err.Error() }
 func (e *unresolvedError) Unwrap() error { return e.err }
@@ -434,7 +455,7 @@ func resolved(in *SolveInput, conds []ConductorConfig) error {
 	if !known && dof > 0 {
 		scale = all / float64(dof)
 	}
-	var weak []string
+	var weak, rises []string
 	for k, c := range conds {
 		rest := append(append([]ConductorConfig(nil), conds[:k]...), conds[k+1:]...)
 		without, _, err := chi2(rest)
@@ -443,10 +464,12 @@ func resolved(in *SolveInput, conds []ConductorConfig) error {
 		}
 		if d := (without - all) / scale; !(d >= minLineDeltaChi2) {
 			weak = append(weak, fmt.Sprintf("%s (its field lowers the chi-square by %.3g, against %d needed)", c.Name, d, minLineDeltaChi2))
+		} else {
+			rises = append(rises, fmt.Sprintf("%s by %.3g", c.Name, d))
 		}
 	}
 	if len(weak) > 0 {
-		return &unresolvedError{fmt.Errorf("the commissioning readings do not resolve the field of %s: the currents are off or too small for the noise; a geometry fitted to them would be the noise's", strings.Join(weak, ", "))}
+		return &unresolvedError{err: fmt.Errorf("the commissioning readings do not resolve the field of %s: the currents are off or too small for the noise; a geometry fitted to them would be the noise's", strings.Join(weak, ", "))}
 	}
 	unc, err := geometryCovariance(in, conds)
 	if err != nil || unc == nil {
@@ -472,7 +495,12 @@ func resolved(in *SolveInput, conds []ConductorConfig) error {
 		}
 	}
 	if len(weak) > 0 {
-		return &unresolvedError{fmt.Errorf("the commissioning readings do not fix where %s run: the currents are off or too small for the noise", strings.Join(weak, ", "))}
+		// Every line's field stands out (it lowers the chi-square by
+		// minLineDeltaChi2 or more): the currents flow, and it is the
+		// sensors' layout that does not fix the places.
+		return &unresolvedError{err: fmt.Errorf("the sensor layout does not fix where %s run, though every line's field stands out of the noise (leaving it out raises the chi-square: %s, against %d needed): "+
+			"the sensors do not see the lines from enough places across them to tell one line's place from another's; add sensors across the lines, or hold the geometry with model = \"fixed\"",
+			strings.Join(weak, ", "), strings.Join(rises, ", "), minLineDeltaChi2), layout: true}
 	}
 	return nil
 }

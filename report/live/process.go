@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"strings"
 
 	"gonum.org/v1/gonum/stat/distuv"
 
@@ -98,9 +99,49 @@ type reduced struct {
 	// mean (despikeDC) or an AC window's demodulation (acSpikes, despikeACWindow) as
 	// spikes; nil when none.
 	spikes map[string]int
+	// frozen names the sensors that repeated one reading on every axis
+	// through the window (a hung logger or a frozen output; called stuck
+	// only from the second such window: stuckAxis), for the wording of a
+	// misfit they cause.
+	frozen map[string]bool
 	// dc are a DC window's usable sensors' calibrated readings, despiked,
 	// for its change test (windowChange); nil for AC.
 	dc []sensorData
+}
+
+// frozenUsed names, "sensor X" or "sensors X, Y", the used sensors of
+// the window that repeated one reading on every axis through it; "" when
+// none did.
+func (r *reduced) frozenUsed(a *AssetConfig) string {
+	var names []string
+	for _, si := range r.used {
+		if n := a.Sensors[si].Name; r.frozen[n] {
+			names = append(names, n)
+		}
+	}
+	switch len(names) {
+	case 0:
+		return ""
+	case 1:
+		return "sensor " + names[0]
+	}
+	return "sensors " + strings.Join(names, ", ")
+}
+
+// frozenWindow reports whether s repeats one reading on every axis
+// through the window.
+func frozenWindow(s *series) bool {
+	for _, col := range [][]float64{s.Bx, s.By, s.Bz} {
+		if len(col) < 2 {
+			return false
+		}
+		for _, v := range col[1:] {
+			if v != col[0] {
+				return false
+			}
+		}
+	}
+	return true
 }
 
 // addSpikes counts k readings of sensor name left out as spikes.
@@ -191,6 +232,14 @@ func (p *processor) reduce(w *window) *reduced {
 			r.alarms = append(r.alarms, p.alarm(w, AlarmStuck, s.Name, v, 0,
 				fmt.Sprintf("sensor %s repeated one value on axis %s for %d samples", s.Name, axis, n)))
 			continue
+		}
+		if frozenWindow(&sr) {
+			// Not yet called stuck (that takes a second window), but
+			// named as frozen if its readings are then a misfit.
+			if r.frozen == nil {
+				r.frozen = map[string]bool{}
+			}
+			r.frozen[s.Name] = true
 		}
 		if a.Mode == "ac" {
 			// The rate from times near 2e9 s carries rounding: 1e-6 of slack.
@@ -446,8 +495,15 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 		// the rest.
 		if sub, bad, why := p.isolate(r); sub != nil {
 			if o2, err2 := p.est.Solve(&sub.in); err2 == nil && len(o2.Current) == len(p.names) && nonFiniteOutput(o2) == "" {
+				frozen := r.frozen
 				r, out = sub, o2
 				for k, name := range bad {
+					if frozen[name] {
+						r.missing[name] = "frozen (one reading repeated on every axis through the window), inconsistent with the other sensors' readings: " + why[k]
+						alarms = append(alarms, p.alarm(w, AlarmInconsistent, name, 0, a.Alarms.MaxChi2,
+							fmt.Sprintf("sensor %s repeated one reading on every axis through the window (frozen: a hung logger or a stuck output; it is called stuck if it repeats it through the next window too), and that reading is inconsistent with the other sensors': %s; the window is solved without it. Check the sensor's logger and output", name, why[k])))
+						continue
+					}
 					r.missing[name] = "inconsistent with the other sensors' readings (knocked, moved, or its offset changed?): " + why[k]
 					alarms = append(alarms, p.alarm(w, AlarmInconsistent, name, 0, a.Alarms.MaxChi2,
 						fmt.Sprintf("sensor %s's reading is inconsistent with the other sensors': %s; the window is solved without it. Check the sensor (turned or moved on its mount, offset drift)", name, why[k])))
@@ -468,7 +524,10 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 		if s := p.worstSensors(r); s != "" {
 			worst = "; the sensors whose leaving out lowers the chi-square most: " + s
 		}
-		const model = "; a misfit spread over several sensors points to a conductor the thin-line model does not describe (a flat bar, a bend or another source close to the sensors: a line's field differs from a strip's of width w at distance d by about (w/d)^2/12) or to a wrong geometry, one at a single sensor to that sensor (moved, turned, its offset changed)"
+		model := "; a misfit spread over several sensors points to a conductor the thin-line model does not describe (a flat bar, a bend or another source close to the sensors: a line's field differs from a strip's of width w at distance d by about (w/d)^2/12) or to a wrong geometry, one at a single sensor to that sensor (moved, turned, its offset changed)"
+		if fr := r.frozenUsed(a); fr != "" {
+			model = "; " + fr + " repeated one reading on every axis through the window (frozen: a hung logger or a stuck output, called stuck if it repeats it through the next window too): its readings are likely the misfit; check its logger and output"
+		}
 		if a.Noise > 0 {
 			scale = math.Sqrt(jred)
 			e.SigmaScale = scale

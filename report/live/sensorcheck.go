@@ -19,9 +19,20 @@ const AlarmInconsistent = "inconsistent"
 const scatterSamples = 10
 
 // sampleScatter is the one-sigma of the mean of the columns' samples
-// from their own scatter, sqrt(mean over axes of s_k^2 / n) with s_k^2
-// the unbiased sample variance of axis k; 0 when there are fewer than
-// scatterSamples samples.
+// from their own scatter, sqrt(mean over axes of v_k) with v_k = s_k^2 / n,
+// s_k^2 the unbiased sample variance of axis k; 0 when there are fewer
+// than scatterSamples samples.
+//
+// v_k is floored by the rounding of readings logged at a resolution q
+// (the smallest step between two values of the axis in the window): the
+// rounding adds q^2/12 to each reading's variance (Sheppard's
+// correction), and when the noise is below q it does not average out:
+// the mean of rounded readings is biased by up to (q/pi)
+// exp(-2 pi^2 s^2/q^2) (the first term of the Fourier series of the
+// rounding error, averaged over Gaussian noise of sigma s; from memory),
+// whose mean square over the true value's place in the step is half its
+// square. Without the floor, 492 of 500 readings of one value gave a
+// mean that "missed" the model by five times its scatter.
 func sampleScatter(cols ...[]float64) float64 {
 	var v float64
 	n := 0
@@ -35,12 +46,32 @@ func sampleScatter(cols ...[]float64) float64 {
 		for _, x := range c {
 			s += (x - m) * (x - m)
 		}
-		v += s / float64(n-1)
+		s /= float64(n - 1)
+		vk := s / float64(n)
+		if q := smallestStep(c); q > 0 && !math.IsInf(q, 1) {
+			b := q / math.Pi * math.Exp(-2*math.Pi*math.Pi*s/(q*q))
+			vk = math.Max(vk, q*q/12/float64(n)+b*b/2)
+		}
+		v += vk
 	}
 	if n == 0 {
 		return 0
 	}
-	return math.Sqrt(v / float64(len(cols)) / float64(n))
+	return math.Sqrt(v / float64(len(cols)))
+}
+
+// smallestStep is the smallest positive difference between two values of
+// col (+Inf when all are equal).
+func smallestStep(col []float64) float64 {
+	u := append([]float64(nil), col...)
+	sort.Float64s(u)
+	q := math.Inf(1)
+	for i := 1; i < len(u); i++ {
+		if d := u[i] - u[i-1]; d > 0 && d < q {
+			q = d
+		}
+	}
+	return q
 }
 
 // judged is a window's input with the sigmas its fit is judged by: the
