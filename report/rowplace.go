@@ -116,6 +116,7 @@ func (g *Group) rowOffset(i int, s *Source, p [3]float64, st *Station) (off, sig
 	// Right of (de, dn) in plan is (dn, -de).
 	off = ((p[0]-g.Centroid[0])*dn - (p[1]-g.Centroid[1])*de) / h
 	a, b := &g.Sources[g.SummedSources[0]], &g.Sources[g.SummedSources[1]]
-	sigma = splitPlanSigma(math.Abs(a.Current), a.OffsetSigma, math.Abs(b.Current), b.OffsetSigma)
+	sigma = splitPlanSigma(math.Abs(a.Current), a.OffsetSigma, math.Abs(b.Current), b.OffsetSigma,
+		splitParallel(a.Azimuth, a.AzimuthSigma, b.Azimuth, b.AzimuthSigma))
 	return off, sigma
 }

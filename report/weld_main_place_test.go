@@ -11,8 +11,14 @@ import (
 	"undercurrent/inverse/simulate"
 )
 
-// planDistance is the horizontal distance, m, from p to polyline c.
+// planDistance is the horizontal distance, m, from p to conductor c: a
+// polyline, or a straight line (Point, Direction) not running vertically.
 func planDistance(c *simulate.Conductor, p [3]float64) float64 {
+	if c.Point != nil && c.Direction != nil {
+		o, u := *c.Point, *c.Direction
+		h := math.Hypot(u[0], u[1])
+		return math.Abs((p[0]-o[0])*u[1]-(p[1]-o[1])*u[0]) / h
+	}
 	best := math.Inf(1)
 	for i := 0; i+1 < len(c.Vertices); i++ {
 		a, b := c.Vertices[i], c.Vertices[i+1]
@@ -92,6 +98,43 @@ func TestWeldMainSummedStationOnPipe(t *testing.T) {
 			want := e*dn - n*de // right of the azimuth, as offset_m is signed
 			if got := num(r, "offset_m"); math.Abs(got-want) > 0.002 {
 				t.Errorf("seed %d: %s source %s: offset_m %.4f, but its east/north lie %.4f m right of the centroid along azimuth %.2f", seed, r[col["group"]], r[col["source"]], got, want, num(r, "azimuth_deg"))
+			}
+		}
+	}
+	if summed == 0 {
+		t.Fatal("no summed station: the check is empty")
+	}
+}
+
+// TestObjectSplitSummedStationOnCable: a steel object over a 20 A cable
+// (testdata/scenarios/open/object-over-cable.toml, invented) splits the fit at
+// T10 into two parallel same-way lines, 16.7 A 0.2 m to one side and 2.7
+// A 0.9 m to the other, whose sum the route takes. Parallel lines are
+// placed at their current-weighted centre, 0.04 m from the cable
+// (simulated truth: the scenario's conductor) on seeds 4-6; weighting
+// them by offset precision as well, as crossing weld shares are, put the
+// station on the stronger line, 0.19 m off.
+func TestObjectSplitSummedStationOnCable(t *testing.T) {
+	if testing.Short() {
+		t.Skip("fits a whole route per seed")
+	}
+	name := filepath.Join("open", "object-over-cable.toml")
+	sc, err := simulate.Load(filepath.Join("..", "testdata", "scenarios", name))
+	if err != nil {
+		t.Fatal(err)
+	}
+	cable := &sc.Conductors[0]
+	summed := 0
+	for _, seed := range []int64{4, 5} {
+		d := scenarioDoc(t, name, seed)
+		for _, s := range d.Route.Stations {
+			g := d.groupByKey(s.Key)
+			if g == nil || g.SummedSources == nil || !s.Used {
+				continue
+			}
+			summed++
+			if dist := planDistance(cable, s.Point); dist > 0.1 {
+				t.Errorf("seed %d: summed station %s lies %.2f m off the cable in plan, want within 0.1 m", seed, s.Key, dist)
 			}
 		}
 	}
