@@ -58,7 +58,8 @@ var csvCol = func() map[string]int {
 // and depth_m (the group's centroid when it has no source), except where
 // the row is a route station placed elsewhere (rowPlace): both lines of a
 // same-way split whose sum the route takes give the station's centre,
-// depth and cover, and a further conductor's row its station's point,
+// depth and cover (and offset_m the centre's, along the row's azimuth:
+// rowOffset), and a further conductor's row its station's point,
 // where that conductor's route passes, and depth and cover there, as the
 // summaries quote them.
 //
@@ -166,7 +167,8 @@ func WriteCSV(w io.Writer, d *Document) error {
 			continue
 		}
 		for i, s := range g.Sources {
-			at, depth, depthSigma, _ := d.rowPlace(&g, i, &s)
+			at, depth, depthSigma, st := d.rowPlace(&g, i, &s)
+			off, offSigma := g.rowOffset(i, &s, at, st)
 			row := base(strconv.Itoa(i+1), s.Kind, at)
 			set := func(col, v string) { row[csvCol[col]] = v }
 			if c := sourceConductor(d, &g, i, &s); c > 0 {
@@ -222,8 +224,8 @@ func WriteCSV(w io.Writer, d *Document) error {
 				set("azimuth_sigma_deg", sigCell(s.AzimuthSigma))
 				set("dip_deg", fixSig(s.Dip, s.DipSigma, 2))
 				set("dip_sigma_deg", sigCell(s.DipSigma))
-				set("offset_m", fixSig(s.Offset, s.OffsetSigma, 3))
-				set("offset_sigma_m", sigCell(s.OffsetSigma))
+				set("offset_m", fixSig(off, offSigma, 3))
+				set("offset_sigma_m", sigCell(offSigma))
 			} else if m, ms, ok := d.objectMoment(&s); ok {
 				set("moment_a_m2", fixSig(m, ms, 4))
 				set("moment_sigma_a_m2", sigCell(ms))

@@ -253,3 +253,66 @@ func TestDepthReferencePerGroupOnSlope(t *testing.T) {
 		t.Errorf("report says depths are %q", txt)
 	}
 }
+
+// TestReferenceLevelHighButFlat: a level survey whose sensors are carried
+// 3.0 m above the ground (a mast), --reference-z 0 the ground itself.
+// Simulated truth (groundSurvey): 1.10 m of cover everywhere, every fit
+// good. The level holds, so no warning may say it does not, and no fit is
+// set aside; a note may ask whether the level is the ground. Before, any
+// mean height over 2.5 m drew "one flat ground level ... does not hold ...
+// runs from 3.00 m (T01) to 3.00 m (T01)".
+func TestReferenceLevelHighButFlat(t *testing.T) {
+	zero := 0.0
+	flat := func(e, n float64) float64 { return 0 }
+	fits := groundSurvey(t, 3, -6, 6, 0, flat, []float64{3.0}, inverse.Settings{ReferenceZ: &zero})
+	d, err := Build(Document{}, fits, &BuildSettings{MinCover: 1.0})
+	if err != nil {
+		t.Fatal(err)
+	}
+	w := strings.Join(d.Warnings, "\n")
+	if strings.Contains(w, "does not hold") {
+		t.Errorf("warnings %q: a level survey's level was said not to hold", w)
+	}
+	if !strings.Contains(w, "is that the ground?") {
+		t.Errorf("warnings %q: want the note on sensors standing 3.00 m above the level", w)
+	}
+	for i, g := range d.Groups {
+		s := fits[i].Result.Sources[0]
+		if math.Abs(s.Depth-1.1) > 4*s.DepthSigma+0.01 {
+			t.Errorf("%s: depth %s m below the level, truth 1.1 (the level is the ground)", g.Key, PlusMinus(s.Depth, s.DepthSigma))
+		}
+		if strings.Contains(g.Problem, "set aside") {
+			t.Errorf("%s: problem %q sets a fit aside on a level survey", g.Key, g.Problem)
+		}
+	}
+}
+
+// TestReferenceLevelMistyped: a level survey, sensors 0.3 m over the
+// ground, and --reference-z -3 given where the ground is at 0 (a level
+// mistyped, or given in another datum). Simulated truth (groundSurvey):
+// the cable 1.1 m under the ground, so 1.9 m above the level given. The
+// level is wrong, not the terrain: each traverse keeps the message that
+// its line lies above the ground given, and no warning says one flat level
+// does not hold. Before, every traverse was "set aside, not failed: the
+// ground level given does not hold here", pointing the user at the terrain.
+func TestReferenceLevelMistyped(t *testing.T) {
+	low := -3.0
+	flat := func(e, n float64) float64 { return 0 }
+	fits := groundSurvey(t, 3, -4, 4, 0, flat, []float64{0.3}, inverse.Settings{ReferenceZ: &low})
+	d, err := Build(Document{}, fits, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	w := strings.Join(d.Warnings, "\n")
+	if strings.Contains(w, "does not hold") {
+		t.Errorf("warnings %q: a level survey's level was said not to hold", w)
+	}
+	for i, g := range d.Groups {
+		if s := fits[i].Result.Sources[0]; s.Depth >= 0 {
+			t.Fatalf("%s: depth %g m: the line should lie above the level given", g.Key, s.Depth)
+		}
+		if !strings.Contains(g.Problem, "lies above the ground given") || strings.Contains(g.Problem, "set aside") {
+			t.Errorf("%s: problem %q, want the line lying above the ground given", g.Key, g.Problem)
+		}
+	}
+}

@@ -363,9 +363,12 @@ func groupList(keys []string) string {
 }
 
 // levelFlat and levelHigh, m: the groups' mean sensor heights above a
-// --reference-z level that differ by more than levelFlat, or one over
-// levelHigh (higher than a sensor is carried), say one flat level does not
-// hold for the survey.
+// --reference-z level that differ by more than levelFlat say one flat level
+// does not hold for the survey. Heights within levelFlat of each other but
+// all over levelHigh (higher than a hand-carried sensor) hold the level
+// fine, as on a mast or a boom, or a log whose up is not from the ground:
+// they draw only a note asking whether the level is the ground, and set no
+// fit aside (a level simply mistyped keeps its own message per group).
 const (
 	levelFlat = 0.5
 	levelHigh = 2.5
@@ -440,14 +443,23 @@ func referenceLevelWarnings(fits []Fit, origin *Origin) (warn []string, off map[
 		warn = append(warn, fmt.Sprintf("the ground level given with --reference-z, up = %g m, lies %.2f m above the mean height of the sensors%s: check the level given.%s",
 			zref, -lo.h, name(lo.key), frame))
 	}
-	if hi.h-lo.h > levelFlat || hi.h > levelHigh {
-		warn = append(warn, fmt.Sprintf("one flat ground level (--reference-z, up = %g m) does not hold for this survey: the sensors' mean height above it runs from %.2f m%s to %.2f m%s. Depths and cover below it are wrong where the ground is not at that level, and a line placed above it there says nothing of the data; give the sensors' height above the ground with --sensor-height instead (with heights in the log, the ground then follows them).%s",
-			zref, lo.h, name(lo.key), hi.h, name(hi.key), frame))
-		off = map[string]float64{}
-		for _, g := range hs {
-			if g.h-lo.h > levelFlat || g.h > levelHigh {
-				off[g.key] = g.h
+	if hi.h-lo.h <= levelFlat {
+		if lo.h > levelHigh {
+			span := fmt.Sprintf("%.2f m", lo.h)
+			if fmt.Sprintf("%.2f", hi.h) != fmt.Sprintf("%.2f", lo.h) {
+				span = fmt.Sprintf("%.2f m to %.2f m", lo.h, hi.h)
 			}
+			warn = append(warn, fmt.Sprintf("the sensors stand %s above the ground level given with --reference-z (up = %g m) on every traverse: is that the ground? Depths and cover are measured below it; if the sensors were carried that high (a mast or a boom) they stand, otherwise give the ground's level, or the sensors' height above the ground with --sensor-height.%s",
+				span, zref, frame))
+		}
+		return warn, nil
+	}
+	warn = append(warn, fmt.Sprintf("one flat ground level (--reference-z, up = %g m) does not hold for this survey: the sensors' mean height above it runs from %.2f m%s to %.2f m%s. Depths and cover below it are wrong where the ground is not at that level, and a line placed above it there says nothing of the data; give the sensors' height above the ground with --sensor-height instead (with heights in the log, the ground then follows them).%s",
+		zref, lo.h, name(lo.key), hi.h, name(hi.key), frame))
+	off = map[string]float64{}
+	for _, g := range hs {
+		if g.h-lo.h > levelFlat {
+			off[g.key] = g.h
 		}
 	}
 	return warn, off

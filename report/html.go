@@ -1165,6 +1165,14 @@ func (d *Document) shallowLoneLine() (c coverAt, ok bool) {
 			if g.Pair != nil && (g.Pair.Sources[0] == j || g.Pair.Sources[1] == j) {
 				continue
 			}
+			if g.summedPart(j) {
+				// A share of conductor 1, whose station takes its sum
+				// with line 1 (Group.SummedSources), is no further line:
+				// on weld-main (seed 4) the headline sent the crew to a
+				// crossing service 1.31 m down at T17, where one pipe
+				// lies 1.74 m down (found in review).
+				continue
+			}
 			if hasString(s.Unidentifiable, "current") || hasString(s.Unidentifiable, "depth") || !(math.Abs(s.Current) >= weakCoverShare*main) {
 				continue
 			}

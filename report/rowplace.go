@@ -1,5 +1,7 @@
 package report
 
+import "math"
+
 // summedPart reports whether source i of g is one of the two lines of a
 // same-way split whose sum the route takes (Group.SummedSources).
 func (g *Group) summedPart(i int) bool {
@@ -87,4 +89,34 @@ func (d *Document) SummedColumns(g *Group, i int) (current, depth string, ok boo
 	}
 	a, b := g.Sources[g.SummedSources[0]], g.Sources[g.SummedSources[1]]
 	return "of " + PlusMinus(a.Current, a.CurrentSigma) + " + " + PlusMinus(b.Current, b.CurrentSigma), "(centre)", true
+}
+
+// rowOffset is the offset, m, and its sigma that results.csv gives for
+// source i of group g, placed at p (rowPlace; st the station when the row
+// takes its place, else nil): the signed horizontal distance from the
+// group's centroid to the line through p along the source's own
+// direction, positive to the right looking along it, so that the row's
+// east/north, azimuth and offset name one line. For a further
+// conductor's row p lies on the source's own line and the offset is the
+// source's. The lines of a same-way split whose sum the route takes are
+// placed at their centre (splitSumCentre): the row had kept line 1's own
+// offset (-0.348 m) beside the centre's east/north, which lay 0.4-0.7 m
+// from that line (found in review); its sigma is the centre's
+// (splitPlanSigma).
+func (g *Group) rowOffset(i int, s *Source, p [3]float64, st *Station) (off, sigma float64) {
+	off, sigma = s.Offset, s.OffsetSigma
+	if st == nil || !g.summedPart(i) {
+		return off, sigma
+	}
+	de, dn := s.Direction[0], s.Direction[1]
+	h := math.Hypot(de, dn)
+	if !(h > 0) {
+		return off, sigma
+	}
+	// Right of (de, dn) in plan is (dn, -de).
+	off = ((p[0]-g.Centroid[0])*dn - (p[1]-g.Centroid[1])*de) / h
+	a, b := &g.Sources[g.SummedSources[0]], &g.Sources[g.SummedSources[1]]
+	sigma = splitPlanSigma(math.Abs(a.Current), a.OffsetSigma, math.Abs(b.Current), b.OffsetSigma,
+		splitParallel(a.Azimuth, a.AzimuthSigma, b.Azimuth, b.AzimuthSigma))
+	return off, sigma
 }
