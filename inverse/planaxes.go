@@ -14,3 +14,22 @@ func PlanPrincipal(sxx, syy, sxy float64) (major, minor, angle float64) {
 	disc := math.Sqrt(math.Max(tr*tr/4-det, 0))
 	return tr/2 + disc, math.Max(tr/2-disc, 0), 0.5 * math.Atan2(2*sxy, sxx-syy)
 }
+
+// PlanScatter returns the centre of points in plan (their mean east and
+// north) and the sums of squares about it, sxx, syy and sxy, for
+// PlanPrincipal.
+func PlanScatter(pts [][3]float64) (ce, cn, sxx, syy, sxy float64) {
+	for _, p := range pts {
+		ce += p[0]
+		cn += p[1]
+	}
+	n := float64(len(pts))
+	ce, cn = ce/n, cn/n
+	for _, p := range pts {
+		e, nn := p[0]-ce, p[1]-cn
+		sxx += e * e
+		syy += nn * nn
+		sxy += e * nn
+	}
+	return ce, cn, sxx, syy, sxy
+}

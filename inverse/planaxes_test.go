@@ -5,6 +5,7 @@ import (
 	"testing"
 
 	"gonum.org/v1/gonum/mat"
+	"gonum.org/v1/gonum/stat"
 )
 
 // TestPlanPrincipalMatchesGonum checks PlanPrincipal against gonum's
@@ -32,5 +33,32 @@ func TestPlanPrincipalMatchesGonum(t *testing.T) {
 		if dot := math.Abs(math.Cos(ang)*vec.At(0, 1) + math.Sin(ang)*vec.At(1, 1)); math.Abs(dot-1) > 1e-9 {
 			t.Errorf("%+v: axis at %g rad not along gonum's eigenvector (|cos| %g)", c, ang, dot)
 		}
+	}
+}
+
+// TestPlanScatterMatchesGonum checks PlanScatter's centre and sums of
+// squares against gonum's stat.Mean and stat.Covariance (a general-purpose
+// reference) on points along an oblique line with scatter across it.
+func TestPlanScatterMatchesGonum(t *testing.T) {
+	var pts [][3]float64
+	var es, ns []float64
+	for i := range 41 {
+		e := 3 + 0.25*float64(i)*math.Cos(0.6) + 0.03*math.Sin(float64(7*i))
+		n := -2 + 0.25*float64(i)*math.Sin(0.6) + 0.03*math.Cos(float64(5*i))
+		pts = append(pts, [3]float64{e, n, 0.3})
+		es, ns = append(es, e), append(ns, n)
+	}
+	ce, cn, sxx, syy, sxy := PlanScatter(pts)
+	m := float64(len(pts) - 1) // stat's covariances are unbiased: sums over n-1
+	for _, c := range []struct{ got, want float64 }{
+		{ce, stat.Mean(es, nil)}, {cn, stat.Mean(ns, nil)},
+		{sxx, m * stat.Covariance(es, es, nil)}, {syy, m * stat.Covariance(ns, ns, nil)}, {sxy, m * stat.Covariance(es, ns, nil)},
+	} {
+		if math.Abs(c.got-c.want) > 1e-12*math.Max(1, math.Abs(c.want)) {
+			t.Errorf("PlanScatter %g, gonum %g", c.got, c.want)
+		}
+	}
+	if _, _, ang := PlanPrincipal(sxx, syy, sxy); math.Abs(ang-0.6) > 0.01 {
+		t.Errorf("major axis at %g rad, the line runs at 0.6", ang)
 	}
 }

@@ -66,24 +66,14 @@ func localSensorZ(pts [][3]float64, at [3]float64) (z, se float64, ok bool) {
 		return 0, 0, false
 	}
 	var win [][3]float64
-	var ce, cn float64
 	for _, p := range pts {
 		if math.Hypot(p[0]-at[0], p[1]-at[1]) <= dmin+localGroundReach {
 			win = append(win, p)
-			ce += p[0]
-			cn += p[1]
 		}
 	}
 	n := float64(len(win))
-	ce, cn = ce/n, cn/n
 	// Plan spread of the window: its principal directions.
-	var see, snn, sen float64
-	for _, p := range win {
-		e, nn := p[0]-ce, p[1]-cn
-		see += e * e
-		snn += nn * nn
-		sen += e * nn
-	}
+	ce, cn, see, snn, sen := inverse.PlanScatter(win)
 	l1, l2, ang := inverse.PlanPrincipal(see, snn, sen)
 	// Unit vectors along the principal directions.
 	u := [2]float64{math.Cos(ang), math.Sin(ang)}

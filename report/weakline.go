@@ -194,21 +194,7 @@ func alongClause(f *Fit) string {
 	if f == nil || f.Problem == nil || len(f.Problem.Points) < 3 {
 		return ""
 	}
-	pts := f.Problem.Points
-	var mx, my float64
-	for _, q := range pts {
-		mx += q[0]
-		my += q[1]
-	}
-	n := float64(len(pts))
-	mx, my = mx/n, my/n
-	var sxx, syy, sxy float64
-	for _, q := range pts {
-		dx, dy := q[0]-mx, q[1]-my
-		sxx += dx * dx
-		syy += dy * dy
-		sxy += dx * dy
-	}
+	_, _, sxx, syy, sxy := inverse.PlanScatter(f.Problem.Points)
 	// The spreads along and across the line of readings, and its
 	// direction (az from east, anticlockwise).
 	major, minor, az := inverse.PlanPrincipal(sxx, syy, sxy)

@@ -2,6 +2,7 @@ package live
 
 import (
 	"math"
+	"slices"
 	"sort"
 
 	"gonum.org/v1/gonum/mat"
@@ -203,10 +204,7 @@ func acSpikes(d *sensorData, freq float64) []bool {
 				nextLeft++
 			}
 		}
-		same := nextLeft == left
-		for i := range n {
-			same = same && next[i] == drop[i]
-		}
+		same := slices.Equal(next, drop)
 		drop, left = next, nextLeft
 		if same {
 			break
@@ -229,10 +227,7 @@ func acSpikes(d *sensorData, freq float64) []bool {
 		if float64(nextLeft) > acMaxSpikeShare*float64(n) {
 			return nil
 		}
-		same := nextLeft == left
-		for i := range n {
-			same = same && next[i] == drop[i]
-		}
+		same := slices.Equal(next, drop)
 		drop, left = next, nextLeft
 		if same {
 			break
