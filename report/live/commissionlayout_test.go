@@ -1,16 +1,12 @@
 package live
 
 import (
-	"context"
-	"encoding/json"
 	"errors"
 	"math"
 	"strings"
 	"sync/atomic"
 	"testing"
-	"time"
 
-	"undercurrent/ingest/broker"
 	"undercurrent/inverse"
 )
 
@@ -70,37 +66,10 @@ func TestCommissionLayoutStops(t *testing.T) {
 	}
 	h := newHarness(t)
 	var calls atomic.Int64
-	site := testSite(t, stopSiteText)
-	a := site.Asset("fenwick-lane")
-	svc, err := New(Config{Site: site, Conn: h.nc, Worker: "wk", NewEstimator: newMean, Commissioner: layoutCommissioner{&calls}})
-	if err != nil {
-		t.Fatal(err)
-	}
-	ctx, cancel := context.WithCancel(context.Background())
-	defer cancel()
-	done := make(chan error, 1)
-	go func() { done <- svc.Run(ctx) }()
-	<-svc.Ready()
-	limit := 20 * int(a.Commission.Seconds()/a.Window.Seconds()+1)
-	h.publish(0, 0.5*float64(limit+4))
-	var ai AssetInfo
-	waitFor(t, 60*time.Second, "the asset stopped", func() bool {
-		ai, err = svc.assetInfo(context.Background(), svc.site.Asset("fenwick-lane"))
-		return err == nil && ai.Stopped != ""
-	})
-	t.Logf("stopped: %s", ai.Stopped)
-	cancel()
-	if err := <-done; err != nil {
-		t.Errorf("Run: %v", err)
-	}
-	var alarms []Alarm
-	scan(context.Background(), h.js, broker.StreamAlarms, broker.AlarmSubject("fenwick-lane", AlarmCommissioning), func(d []byte) bool {
-		var al Alarm
-		if json.Unmarshal(d, &al) == nil {
-			alarms = append(alarms, al)
-		}
-		return true
-	})
+	r := commissionUntilStopped(t, h, layoutCommissioner{&calls})
+	t.Logf("stopped: %s", r.ai.Stopped)
+	r.end(t)
+	alarms := commissioningAlarms(h)
 	if len(alarms) != 1 || !strings.Contains(alarms[0].Message, "sensor layout") || strings.Contains(alarms[0].Message, "flat bar") {
 		t.Errorf("commissioning alarms %+v, want one naming the sensor layout", alarms)
 	}

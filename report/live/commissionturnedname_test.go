@@ -1,14 +1,12 @@
 package live
 
 import (
-	"context"
 	"errors"
 	"math"
 	"math/cmplx"
 	"math/rand/v2"
 	"strings"
 	"testing"
-	"time"
 )
 
 // turnedFenwick returns the mean readings of the Fenwick Lane asset of
@@ -84,28 +82,9 @@ func TestCommissionStopCausesOnce(t *testing.T) {
 		t.Skip("runs a broker and the service")
 	}
 	h := newHarness(t)
-	site := testSite(t, stopSiteText)
-	a := site.Asset("fenwick-lane")
-	svc, err := New(Config{Site: site, Conn: h.nc, Worker: "wk", NewEstimator: newMean, Commissioner: barCommissioner{}})
-	if err != nil {
-		t.Fatal(err)
-	}
-	ctx, cancel := context.WithCancel(context.Background())
-	defer cancel()
-	done := make(chan error, 1)
-	go func() { done <- svc.Run(ctx) }()
-	<-svc.Ready()
-	limit := 20 * int(a.Commission.Seconds()/a.Window.Seconds()+1)
-	h.publish(0, 0.5*float64(limit+4))
-	var ai AssetInfo
-	waitFor(t, 60*time.Second, "the asset stopped", func() bool {
-		ai, err = svc.assetInfo(context.Background(), svc.site.Asset("fenwick-lane"))
-		return err == nil && ai.Stopped != ""
-	})
-	cancel()
-	if err := <-done; err != nil {
-		t.Errorf("Run: %v", err)
-	}
+	r := commissionUntilStopped(t, h, barCommissioner{})
+	r.end(t)
+	ai := r.ai
 	if n := strings.Count(ai.Stopped, "flat bar"); n != 1 {
 		t.Errorf("stopped %q gives the causes %d times, want once", ai.Stopped, n)
 	}

@@ -201,26 +201,8 @@ func TestCommissionMisfitCapStops(t *testing.T) {
 	}
 	h := newHarness(t)
 	var calls atomic.Int64
-	site := testSite(t, stopSiteText)
-	a := site.Asset("fenwick-lane")
-	svc, err := New(Config{Site: site, Conn: h.nc, Worker: "wk", NewEstimator: newMean, Commissioner: misfitCommissioner{&calls}})
-	if err != nil {
-		t.Fatal(err)
-	}
-	ctx, cancel := context.WithCancel(context.Background())
-	defer cancel()
-	done := make(chan error, 1)
-	go func() { done <- svc.Run(ctx) }()
-	<-svc.Ready()
-	// commissionLimit: 20 * (1 s / 0.5 s + 1) = 60 failed fits, from the
-	// second window on: 32 s of data.
-	limit := 20 * int(a.Commission.Seconds()/a.Window.Seconds()+1)
-	h.publish(0, 0.5*float64(limit+4))
-	var ai AssetInfo
-	waitFor(t, 60*time.Second, "the asset stopped", func() bool {
-		ai, err = svc.assetInfo(context.Background(), svc.site.Asset("fenwick-lane"))
-		return err == nil && ai.Stopped != ""
-	})
+	r := commissionUntilStopped(t, h, misfitCommissioner{&calls})
+	a, limit, ai := r.asset, r.limit, r.ai
 	t.Logf("stopped: %s", ai.Stopped)
 	if !strings.Contains(ai.Stopped, "flat bar") || !strings.Contains(ai.Stopped, "orientation") {
 		t.Errorf("stopped %q names neither an extended conductor nor a sensor's orientation", ai.Stopped)
@@ -236,23 +218,13 @@ func TestCommissionMisfitCapStops(t *testing.T) {
 		e, err := kv.Get(context.Background(), "fenwick-lane")
 		return err == nil && e.Revision() >= rev0+3
 	})
-	cancel()
-	if err := <-done; err != nil {
-		t.Errorf("Run: %v", err)
-	}
+	r.end(t)
 	// limit+1 tries, then one without each of the three sensors
 	// (misfitSensor); none after the stop.
 	if n := calls.Load(); n != n0 || int(n0) != limit+1+len(a.Sensors) {
 		t.Errorf("commissioned %d times by the stop, %d in all; want %d, none after (not taken again)", n0, n, limit+1+len(a.Sensors))
 	}
-	var alarms []Alarm
-	scan(context.Background(), h.js, broker.StreamAlarms, broker.AlarmSubject("fenwick-lane", AlarmCommissioning), func(d []byte) bool {
-		var al Alarm
-		if json.Unmarshal(d, &al) == nil {
-			alarms = append(alarms, al)
-		}
-		return true
-	})
+	alarms := commissioningAlarms(h)
 	if len(alarms) != 1 || !strings.Contains(alarms[0].Message, "flat bar") {
 		t.Errorf("commissioning alarms %+v, want one naming the likely cause", alarms)
 	}
@@ -382,4 +354,64 @@ func TestCommissionMisfitNamesTurnedSensor(t *testing.T) {
 	if name, ok := w.misfitSensor(&sum, reds); !ok || name != "km-c" {
 		t.Errorf("named %q (%v), want km-c", name, ok)
 	}
+}
+
+// stopRun is a service run by commissionUntilStopped.
+type stopRun struct {
+	svc    *Service
+	asset  *AssetConfig
+	limit  int       // the commissioning limit, in windows
+	ai     AssetInfo // the stopped asset's endpoint
+	cancel context.CancelFunc
+	done   chan error
+}
+
+// commissionUntilStopped runs the service on stopSiteText's asset with
+// commissioner c, publishes readings for the commissioning limit's windows
+// (commissionLimit: 20 * (1 s / 0.5 s + 1) = 60 failed fits, from the
+// second window on) and four more, and waits for the asset to stop. End
+// the run with end.
+func commissionUntilStopped(t *testing.T, h *harness, c Commissioner) *stopRun {
+	t.Helper()
+	site := testSite(t, stopSiteText)
+	r := &stopRun{asset: site.Asset("fenwick-lane"), done: make(chan error, 1)}
+	var err error
+	r.svc, err = New(Config{Site: site, Conn: h.nc, Worker: "wk", NewEstimator: newMean, Commissioner: c})
+	if err != nil {
+		t.Fatal(err)
+	}
+	var ctx context.Context
+	ctx, r.cancel = context.WithCancel(context.Background())
+	t.Cleanup(r.cancel)
+	go func() { r.done <- r.svc.Run(ctx) }()
+	<-r.svc.Ready()
+	r.limit = 20 * int(r.asset.Commission.Seconds()/r.asset.Window.Seconds()+1)
+	h.publish(0, 0.5*float64(r.limit+4))
+	waitFor(t, 60*time.Second, "the asset stopped", func() bool {
+		r.ai, err = r.svc.assetInfo(context.Background(), r.svc.site.Asset("fenwick-lane"))
+		return err == nil && r.ai.Stopped != ""
+	})
+	return r
+}
+
+// end stops the run and reports Run's error.
+func (r *stopRun) end(t *testing.T) {
+	t.Helper()
+	r.cancel()
+	if err := <-r.done; err != nil {
+		t.Errorf("Run: %v", err)
+	}
+}
+
+// commissioningAlarms reads the fenwick-lane asset's commissioning alarms.
+func commissioningAlarms(h *harness) []Alarm {
+	var alarms []Alarm
+	scan(context.Background(), h.js, broker.StreamAlarms, broker.AlarmSubject("fenwick-lane", AlarmCommissioning), func(d []byte) bool {
+		var al Alarm
+		if json.Unmarshal(d, &al) == nil {
+			alarms = append(alarms, al)
+		}
+		return true
+	})
+	return alarms
 }
