@@ -19,14 +19,8 @@ func planDistance(c *simulate.Conductor, p [3]float64) float64 {
 		h := math.Hypot(u[0], u[1])
 		return math.Abs((p[0]-o[0])*u[1]-(p[1]-o[1])*u[0]) / h
 	}
-	best := math.Inf(1)
-	for i := 0; i+1 < len(c.Vertices); i++ {
-		a, b := c.Vertices[i], c.Vertices[i+1]
-		dx, dy := b[0]-a[0], b[1]-a[1]
-		u := math.Min(math.Max(((p[0]-a[0])*dx+(p[1]-a[1])*dy)/(dx*dx+dy*dy), 0), 1)
-		best = math.Min(best, math.Hypot(a[0]+u*dx-p[0], a[1]+u*dy-p[1]))
-	}
-	return best
+	_, d := nearestSegment(c, p)
+	return d
 }
 
 // TestWeldMainSummedStationOnPipe: on the steel main with girth welds

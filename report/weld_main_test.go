@@ -8,20 +8,27 @@ import (
 	"undercurrent/inverse/simulate"
 )
 
-// pipeCurrentAt is the current of polyline conductor c in the segment
-// nearest point p in plan: by Ampere's law the current that crosses a
-// traverse over it.
-func pipeCurrentAt(c *simulate.Conductor, p [3]float64) float64 {
-	best, cur := math.Inf(1), 0.0
+// nearestSegment returns the index of polyline conductor c's segment
+// nearest point p in plan, and p's distance from it, m.
+func nearestSegment(c *simulate.Conductor, p [3]float64) (seg int, dist float64) {
+	dist = math.Inf(1)
 	for i := 0; i+1 < len(c.Vertices); i++ {
 		a, b := c.Vertices[i], c.Vertices[i+1]
 		dx, dy := b[0]-a[0], b[1]-a[1]
 		u := math.Min(math.Max(((p[0]-a[0])*dx+(p[1]-a[1])*dy)/(dx*dx+dy*dy), 0), 1)
-		if d := math.Hypot(a[0]+u*dx-p[0], a[1]+u*dy-p[1]); d < best {
-			best, cur = d, c.Currents[i]
+		if d := math.Hypot(a[0]+u*dx-p[0], a[1]+u*dy-p[1]); d < dist {
+			seg, dist = i, d
 		}
 	}
-	return cur
+	return seg, dist
+}
+
+// pipeCurrentAt is the current of polyline conductor c in the segment
+// nearest point p in plan: by Ampere's law the current that crosses a
+// traverse over it.
+func pipeCurrentAt(c *simulate.Conductor, p [3]float64) float64 {
+	seg, _ := nearestSegment(c, p)
+	return c.Currents[seg]
 }
 
 // TestWeldMainCurrentAndDefect: a steel main with girth welds every 12 m

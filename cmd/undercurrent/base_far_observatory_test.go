@@ -31,21 +31,7 @@ import (
 // review).
 func TestLocateFarObservatoryBaseWarned(t *testing.T) {
 	dir := t.TempDir()
-	_, path := scenario(t, "kestrel-moor-step.toml")
-	text, err := os.ReadFile(path)
-	if err != nil {
-		t.Fatal(err)
-	}
-	start := regexp.MustCompile(`(?m)^start = ".*"$`)
-	if !start.Match(text) {
-		t.Fatal("kestrel-moor-step.toml has no start line")
-	}
-	toml := filepath.Join(dir, "kestrel-2020.toml")
-	if err := os.WriteFile(toml, start.ReplaceAll(text, []byte(`start = "2020-01-01T00:00:00Z"`)), 0o644); err != nil {
-		t.Fatal(err)
-	}
-	survey := filepath.Join(dir, "survey.csv")
-	mustCLI(t, "simulate", toml, "-o", survey)
+	survey := kestrelSurvey2020(t, dir)
 
 	far := ingesttest.IAGAFile(t, "BOU20200101vsec.sec")
 	real, err := os.ReadFile(far)

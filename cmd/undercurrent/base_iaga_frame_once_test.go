@@ -25,21 +25,7 @@ import (
 // rows.
 func TestLocateIAGABaseFrameWarnedOnce(t *testing.T) {
 	dir := t.TempDir()
-	_, path := scenario(t, "kestrel-moor-step.toml")
-	text, err := os.ReadFile(path)
-	if err != nil {
-		t.Fatal(err)
-	}
-	start := regexp.MustCompile(`(?m)^start = ".*"$`)
-	if !start.Match(text) {
-		t.Fatal("kestrel-moor-step.toml has no start line")
-	}
-	toml := filepath.Join(dir, "kestrel-2020.toml")
-	if err := os.WriteFile(toml, start.ReplaceAll(text, []byte(`start = "2020-01-01T00:00:00Z"`)), 0o644); err != nil {
-		t.Fatal(err)
-	}
-	survey := filepath.Join(dir, "survey.csv")
-	mustCLI(t, "simulate", toml, "-o", survey)
+	survey := kestrelSurvey2020(t, dir)
 	data, err := os.ReadFile(survey)
 	if err != nil {
 		t.Fatal(err)
@@ -121,4 +107,28 @@ func TestLocateIAGABaseFrameWarnedOnce(t *testing.T) {
 			t.Errorf("%s: the reader's frame warning given beside the base correction's:\n%s", filepath.Base(c.base), out)
 		}
 	}
+}
+
+// kestrelSurvey2020 simulates the Kestrel Moor walk-through
+// (kestrel-moor-step.toml) started at 2020-01-01T00:00:00Z, when the real
+// Boulder 1-second file BOU20200101vsec.sec starts, into dir, and returns
+// the log's path.
+func kestrelSurvey2020(t *testing.T, dir string) string {
+	t.Helper()
+	_, path := scenario(t, "kestrel-moor-step.toml")
+	text, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	start := regexp.MustCompile(`(?m)^start = ".*"$`)
+	if !start.Match(text) {
+		t.Fatal("kestrel-moor-step.toml has no start line")
+	}
+	toml := filepath.Join(dir, "kestrel-2020.toml")
+	if err := os.WriteFile(toml, start.ReplaceAll(text, []byte(`start = "2020-01-01T00:00:00Z"`)), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	survey := filepath.Join(dir, "survey.csv")
+	mustCLI(t, "simulate", toml, "-o", survey)
+	return survey
 }

@@ -161,21 +161,7 @@ func TestCommissionThenHold(t *testing.T) {
 // sensors, 100 Hz in 0.1 s batches, from second from to second to of t0.
 func publishPipe(ctx context.Context, t *testing.T, h *harness, a AssetConfig, rng *rand.Rand, from, to int) {
 	t.Helper()
-	for b := 10 * from; b < 10*to; b++ {
-		for _, s := range a.Sensors {
-			f := pipeLine.Field(s.Position, pipeAmps)
-			bt := &broker.Batch{Asset: a.Name, Sensor: s.Name}
-			for i := range 10 {
-				bt.Time = append(bt.Time, t0+0.1*float64(b)+0.01*float64(i))
-				bt.Bx = append(bt.Bx, f[0]*1e9+pipeEarth[0]+0.3*rng.NormFloat64())
-				bt.By = append(bt.By, f[1]*1e9+pipeEarth[1]+0.3*rng.NormFloat64())
-				bt.Bz = append(bt.Bz, f[2]*1e9+pipeEarth[2]+0.3*rng.NormFloat64())
-			}
-			if _, err := broker.PublishBatch(ctx, h.js, bt, broker.ContentJSON); err != nil {
-				t.Fatal(err)
-			}
-		}
-	}
+	publishPipeAmps(ctx, t, h, a, rng, from, to, pipeAmps)
 }
 
 // readEstimates returns every estimate stored for the asset, in order.
