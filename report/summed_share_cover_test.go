@@ -6,7 +6,6 @@ import (
 	"strings"
 	"testing"
 
-	"undercurrent/inverse"
 	"undercurrent/inverse/simulate"
 )
 
@@ -19,23 +18,7 @@ func summedShareDoc(t *testing.T, name string, seed int64, minCover float64) *Do
 		t.Fatal(err)
 	}
 	sc.Seed = seed
-	s, err := simulate.Simulate(sc)
-	if err != nil {
-		t.Fatal(err)
-	}
-	byKey, keys := groupProblems(s)
-	ground := 0.0
-	var fits []Fit
-	for _, k := range keys {
-		p := byKey[k]
-		res, err := inverse.FitLines(p, &inverse.Settings{ReferenceZ: &ground})
-		fits = append(fits, Fit{Key: k, Problem: p, Result: res, Err: err, MeasuredNoise: secondDiffNoise(p.Fields)})
-	}
-	d, err := Build(Document{}, fits, &BuildSettings{MinCover: minCover})
-	if err != nil {
-		t.Fatal(err)
-	}
-	return d
+	return simulatedDocWith(t, sc, &BuildSettings{MinCover: minCover})
 }
 
 // TestSummedShareNotAFurtherLine: the two lines of a same-way split whose

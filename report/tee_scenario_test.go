@@ -39,6 +39,12 @@ func scenarioDoc(t *testing.T, name string, seed int64) *Document {
 // (ground at up = 0; the measured noise from second differences) and builds the document.
 func simulatedDoc(t *testing.T, sc *simulate.Scenario) *Document {
 	t.Helper()
+	return simulatedDocWith(t, sc, &BuildSettings{})
+}
+
+// simulatedDocWith is simulatedDoc building the document with settings bs.
+func simulatedDocWith(t *testing.T, sc *simulate.Scenario, bs *BuildSettings) *Document {
+	t.Helper()
 	s, err := simulate.Simulate(sc)
 	if err != nil {
 		t.Fatal(err)
@@ -51,7 +57,7 @@ func simulatedDoc(t *testing.T, sc *simulate.Scenario) *Document {
 		res, err := inverse.FitLines(p, &inverse.Settings{ReferenceZ: &ground})
 		fits = append(fits, Fit{Key: k, Problem: p, Result: res, Err: err, MeasuredNoise: secondDiffNoise(p.Fields)})
 	}
-	d, err := Build(Document{}, fits, &BuildSettings{})
+	d, err := Build(Document{}, fits, bs)
 	if err != nil {
 		t.Fatal(err)
 	}
