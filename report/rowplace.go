@@ -31,10 +31,12 @@ func (d *Document) summedStation(g *Group) *Station {
 //   - the two lines of a same-way split whose sum the route takes
 //     (Group.SummedSources): the lines' centre, where conductor 1's route
 //     passes, and its depth;
-//   - a line followed as a further conductor: where that conductor's
-//     route passes, the point where the line meets conductor 1's cross
-//     section (trackStation), not the line's point nearest the readings'
-//     centre, and the line's depth there.
+//   - a line followed as a further conductor whose fitted point is not
+//     where it crosses its traverse: where that conductor's route passes,
+//     the point where the line meets conductor 1's cross section
+//     (trackStation), not the line's point nearest the readings' centre,
+//     and the line's depth there (at a traverse's crossing the station is
+//     the source's own point).
 //
 // An unresolved pair's lines (Group.Pair) are not placed here: their rows
 // give the pair's centre depth as before. st is the station when the row

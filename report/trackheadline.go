@@ -64,8 +64,9 @@ type trackCrossing struct {
 	first, last       float64
 	firstKey, lastKey string
 	// length is the length of the track along itself between its first
-	// and last matched stations, m: the polyline through the places where
-	// it meets conductor 1's cross sections (see crossingOf).
+	// and last matched stations, m: the polyline through its stations, or
+	// for a go-and-return pair through the places where it meets conductor
+	// 1's cross sections (see crossingOf).
 	length float64
 }
 
@@ -82,7 +83,11 @@ func crossingOf(d *Document, t *Track) (trackCrossing, bool) {
 	type placed struct {
 		key                     string
 		chainage, offset, angle float64
-		at                      [2]float64 // where the track meets conductor 1's cross section, m E, N
+		// at is the track's station (a line's: where it crosses the
+		// group's traverse, or where tracks.go placed it otherwise), or
+		// for a pair where the track meets conductor 1's cross section,
+		// m E, N.
+		at [2]float64
 	}
 	var ps []placed
 	var depths []float64
@@ -116,7 +121,11 @@ func crossingOf(d *Document, t *Track) (trackCrossing, bool) {
 		if !finite(off) {
 			continue
 		}
-		ps = append(ps, placed{s.Key, m.Chainage, off, math.Acos(cos) * 180 / math.Pi, q})
+		at := q
+		if !t.Route.PairNet {
+			at = [2]float64{s.Point[0], s.Point[1]}
+		}
+		ps = append(ps, placed{s.Key, m.Chainage, off, math.Acos(cos) * 180 / math.Pi, at})
 		depths = append(depths, s.Depth)
 	}
 	if len(ps) < 2 {
@@ -130,12 +139,17 @@ func crossingOf(d *Document, t *Track) (trackCrossing, bool) {
 		lo, hi = math.Min(lo, p.offset), math.Max(hi, p.offset)
 	}
 	angle := median(angles)
-	// The track's own stations are its fitted points nearest the centres
-	// of the groups' readings: for a conductor crossing the traverses at
-	// an angle they are closer together than the traverses along it (by
-	// cos² of the angle for traverses square to conductor 1), and the
-	// track's route length understates the length followed. The places
-	// where it meets conductor 1's cross sections lie on the traverses.
+	// The length runs through the track's stations in conductor 1's
+	// order: a line's station lies where it crosses the group's traverse
+	// (trackStation), so the polyline follows the conductor from traverse
+	// to traverse. The fits' points nearest the centres of the readings,
+	// closer together than the traverses along a conductor crossing them
+	// at an angle (by cos² of the angle for traverses square to conductor
+	// 1), understated it; so did the places where the track meets
+	// conductor 1's cross sections, taken next, on traverses oblique to
+	// conductor 1 (20 m for 22 m along a cable diverging 10 degrees from
+	// it, the traverses at 65 degrees to the first cable). A pair's
+	// centre is taken there still.
 	var length float64
 	for i := 1; i < len(ps); i++ {
 		length += math.Hypot(ps[i].at[0]-ps[i-1].at[0], ps[i].at[1]-ps[i-1].at[1])

@@ -11,8 +11,11 @@ import (
 // runs north 1.3 m below the sensors under nine traverses every 3 m from
 // north 2 m (T01, chainage 0) to 26 m, and conductor 2 is the straight
 // line through (e0, n0) at az degrees from north, 2.1 m down, seen on the
-// traverses first..last (1-based), each station's point the line's point
-// nearest the traverse's middle. offset, when not nil, replaces the line:
+// traverses first..last (1-based), each station's point where the line
+// crosses the traverse (east-west, at north n), as Build places a further
+// conductor's station (trackStation; it was the line's point nearest the
+// traverse's middle here, where the fits once placed it, and crossingOf
+// moved it to the traverse). offset, when not nil, replaces the line:
 // conductor 2 then runs north at offset(i) m east on traverse i.
 func crossingDoc(e0, n0, az float64, first, last int, offset func(i int) float64) *Document {
 	d := &Document{Route: &Route{}}
@@ -32,8 +35,12 @@ func crossingDoc(e0, n0, az float64, first, last int, offset func(i int) float64
 		if offset != nil {
 			p, dir = [3]float64{offset(i), n, -2.1}, [3]float64{0, 1, 0}
 		} else {
+			// The line's point nearest the traverse's middle, moved
+			// along the line to the traverse.
 			k := (0-e0)*u[0] + (n-n0)*u[1]
 			p = [3]float64{e0 + k*u[0], n0 + k*u[1], -2.1}
+			k = -(p[1] - n) / u[1]
+			p[0], p[1] = p[0]+k*u[0], p[1]+k*u[1]
 		}
 		tr.Route.Stations = append(tr.Route.Stations, Station{
 			Key: key2(i), Chainage: 3 * float64(i-first), Point: p, Direction: dir,

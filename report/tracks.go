@@ -94,8 +94,10 @@ import (
 //     route, then by median offset).
 //
 // Each kept track is analysed by route.Build with the primary's settings:
-// a line's station lies where its offset was measured (where it meets the
-// primary's cross section, with its depth there; see trackStation), and
+// a line's station lies where it crosses the group's traverse, with its
+// depth there, as the primary's does, or, where the fit's point is not at
+// a traverse's crossing, where its offset was measured (where it meets
+// the primary's cross section, with its depth there; see trackStation), and
 // its stations carry the group's fit statistics, so steps, cover and
 // anomalies are judged as on the primary. A track's chainage is measured
 // along its own stations from its first one, as route.Build measures it.
@@ -556,9 +558,12 @@ func soundPair(q *inverse.PairEstimate, ac bool) bool {
 // centre's depth, as conductor 1's station does when the route follows a
 // pair (buildGroup).
 //
-// ownPoint places a line at its own fitted point whatever its angle to
-// the primary (ownPointTrack): the track's placement is then the same at
-// every station.
+// A line lies at its fitted point when that is where it crosses the
+// group's traverse (inverse.SourceEstimate.AtTrackCrossing), else where
+// it meets the primary's cross section (crossAt). ownPoint places a line
+// at its own fitted point whatever its angle to the primary
+// (ownPointTrack): the track's placement is then the same at every
+// station.
 func trackStation(f *Fit, m *trackSource, primary *route.Placed, ownPoint bool) route.Station {
 	if q := m.pair; q != nil {
 		st := primary.Station
@@ -576,21 +581,40 @@ func trackStation(f *Fit, m *trackSource, primary *route.Placed, ownPoint bool) 
 	st := primary.Station
 	st.Point, st.Dir = s.Point, s.Dir
 	st.Depth, st.DepthSigma = s.Depth, s.DepthSigma
-	if uh := math.Hypot(primary.Dir[0], primary.Dir[1]); uh > 0 && !ownPoint {
-		// The station lies where the line meets the primary's cross
-		// section (crossOffset), not at the fit's own point, the line's
-		// point nearest the readings' centre: for a line crossing the
-		// traverse obliquely beyond its ends that point lies metres off
-		// the traverse, along the route, and moves there with the
+	if s.AtTrackCrossing {
+		// The fit's own point is where the line crosses the group's
+		// traverse in plan (inverse.SourceEstimate.AtTrackCrossing), with
+		// the depth and its sigma there, as conductor 1's station is.
+		// Placed where the line meets conductor 1's cross section instead
+		// (below), an oblique traverse's station lay off the traverse by
+		// (the two conductors' distance apart along it) x cos(its angle to
+		// conductor 1), and its depth was the line's there: two cables
+		// 4-7 m apart along traverses at 65 degrees to the first, the
+		// second dipping 1.7 degrees, had the second's stations 2.1-3.9 m
+		// from its crossings, its chainages 8% short and its depths 25-100
+		// sigma shallow (TestBuildObliqueTraverseFurtherStations). Where
+		// crossAt would place the line by its own point, that point is the
+		// crossing too. The offset that links the track (crossOffset) is
+		// still measured in conductor 1's cross section.
+		st.UnderCentre = false
+	} else if uh := math.Hypot(primary.Dir[0], primary.Dir[1]); uh > 0 && !ownPoint {
+		// Not at a traverse's crossing (fixed sensors, a compact group, a
+		// traverse within 20 degrees of the line, a line steeper than 60
+		// degrees): the station lies where the line meets the primary's
+		// cross section (crossOffset), not at the fit's own point, the
+		// line's point nearest the readings' centre: for a line crossing
+		// the readings' line obliquely beyond their ends that point lies
+		// metres off it, along the route, and moves there with the
 		// azimuth's error. route.Build orients a station's current by
 		// the points of its neighbours, and a cable crossing conductor 1
 		// at 40 degrees, fitted 59 ± 11 degrees from square to a 12 m
 		// traverse whose line it crosses 10.8 m beyond the end, had its
 		// point 7 m behind the traverse and 4 m behind the previous
 		// station's: its +5.1 A was turned to -5.1 A, and read as 13 A
-		// leaving the cable (TestLocateObliqueCrossingBeyondEnds). The
-		// depth is the line's there, its sigma widened by the dip's over
-		// the distance along the line (the two taken as independent).
+		// leaving the cable (TestLocateObliqueCrossingBeyondEnds, found
+		// while points lay under the readings' centre). The depth is the
+		// line's there, its sigma widened by the dip's over the distance
+		// along the line (the two taken as independent).
 		u := [2]float64{primary.Dir[0] / uh, primary.Dir[1] / uh}
 		q, depth, t := crossAt(primary.Point, u, s)
 		if finite(q[0]) && finite(q[1]) && finite(q[2]) && finite(depth) {
