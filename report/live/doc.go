@@ -198,8 +198,8 @@
 // conductors' current phasors| above max_imbalance, each taken along the
 // first balance conductor's direction: go and return should
 // cancel; a difference is current leaking to earth), step (change between
-// consecutive windows, or within a DC window that holds a change, above
-// step), silent (no samples from a sensor in a
+// consecutive windows, or within a window that holds a change, DC or
+// AC, above step), silent (no samples from a sensor in a
 // window; with no subject, no data from any sensor for silent_after of
 // wall time, once per silence: dated from the broker's time of the last
 // stored batch, and kept in the checkpoint for a successor), stuck (one value

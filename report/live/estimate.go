@@ -65,11 +65,12 @@ type Estimate struct {
 	// sensor's window (see acSpikes). Absent when none were. Samples
 	// counts the readings used, without them.
 	Spikes map[string]int `json:"spikes,omitempty"`
-	// Change is set on a DC window whose current changed within it (a
-	// switch, a surge, a dip): the window's Conductors give its mean
-	// current, what flowed on average; Change the time the window is best
-	// split at and the currents of its two parts (see windowChange).
-	// Absent on a steady window.
+	// Change is set on a window whose current changed within it (a
+	// switch, a surge, a dip; for AC a step of the RMS current, a fault or
+	// a load switched): the window's Conductors give its mean current,
+	// what flowed on average; Change the time the window is best split at
+	// and the currents of its two parts (see windowChange, and
+	// windowChangeAC for AC). Absent on a steady window.
 	Change *WindowChange `json:"change,omitempty"`
 	// DataLost is set on the first window after data that the broker
 	// removed (data_retention, data_max_bytes) before the worker read it:
@@ -109,7 +110,8 @@ type ConductorEstimate struct {
 	PhaseSigmaGeometry *float64 `json:"phase_sigma_geometry_deg,omitempty"`
 }
 
-// WindowChange is a change of current within a DC window.
+// WindowChange is a change of current within a window (DC, or the RMS
+// current of an AC window).
 type WindowChange struct {
 	// At is the time, s on the sensor clock, at which the window's
 	// readings are best split in two: the change's time, to within the
@@ -117,13 +119,15 @@ type WindowChange struct {
 	// one of its ends).
 	At float64 `json:"at"`
 	// Sigmas is the largest difference between a conductor's currents in
-	// the two parts, in standard deviations of that difference (above 6).
+	// the two parts (for AC their RMS currents, the phasors' magnitudes),
+	// in standard deviations of that difference (above 6).
 	Sigmas     float64       `json:"sigmas"`
 	Conductors []ChangeLevel `json:"conductors"`
 }
 
 // ChangeLevel is one conductor's current before and after a window's
-// change, A, each solved from the mean readings of its part, with
+// change, A, each solved from the mean readings of its part (for AC the
+// RMS current and phase demodulated from its part's readings), with
 // one-sigma errors from the readings' noise (widened by the part's fit as
 // a degraded window's; without the commissioned geometry's share).
 type ChangeLevel struct {
@@ -132,6 +136,10 @@ type ChangeLevel struct {
 	BeforeSigma float64 `json:"current_before_sigma_a"`
 	After       float64 `json:"current_after_a"`
 	AfterSigma  float64 `json:"current_after_sigma_a"`
+	// PhaseBefore and PhaseAfter are the parts' phases, degrees, as
+	// ConductorEstimate.Phase (AC only).
+	PhaseBefore *float64 `json:"phase_before_deg,omitempty"`
+	PhaseAfter  *float64 `json:"phase_after_deg,omitempty"`
 }
 
 // Alarm is published on uc.alarm.<asset>.<kind>.

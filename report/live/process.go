@@ -107,6 +107,10 @@ type reduced struct {
 	// dc are a DC window's usable sensors' calibrated readings, despiked,
 	// for its change test (windowChange); nil for AC.
 	dc []sensorData
+	// ac are an AC window's used sensors' calibrated readings, despiked,
+	// in the order of used, for its change test (windowChangeAC); nil for
+	// DC.
+	ac []sensorData
 }
 
 // frozenUsed names, "sensor X" or "sensors X, Y", the used sensors of
@@ -293,6 +297,7 @@ func (p *processor) reduce(w *window) *reduced {
 			if !ok {
 				continue
 			}
+			r.ac = append(r.ac, d)
 			var e [3]complex128
 			for row := range 3 {
 				for k := range 3 {
@@ -562,13 +567,19 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 	}
 	// The held geometry's error, in quadrature with the window's noise.
 	gCur, gPhase := p.geometrySigmas(&r.in, len(p.names))
-	split := p.windowChange(r)
+	var split *windowSplit
+	if a.Mode == "ac" {
+		split = p.windowChangeAC(r)
+	} else {
+		split = p.windowChange(r)
+	}
 	if split != nil {
 		e.Change = &WindowChange{At: split.at, Sigmas: split.sigmas}
 		for i, name := range p.names {
 			e.Change.Conductors = append(e.Change.Conductors, ChangeLevel{Name: name,
 				Before: split.before.Current[i], BeforeSigma: split.before.CurrentSigma[i],
-				After: split.after.Current[i], AfterSigma: split.after.CurrentSigma[i]})
+				After: split.after.Current[i], AfterSigma: split.after.CurrentSigma[i],
+				PhaseBefore: phaseOf(split.before, i), PhaseAfter: phaseOf(split.after, i)})
 		}
 	}
 	byName := map[string]complex128{}
