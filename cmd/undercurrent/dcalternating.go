@@ -3,6 +3,7 @@ package main
 import (
 	"fmt"
 	"math"
+	"sort"
 
 	"gonum.org/v1/gonum/dsp/fourier"
 
@@ -37,20 +38,32 @@ const (
 	altMaxSegments = 256
 )
 
-// alternatingLine looks for the strongest spectral line above altMinFreq
-// in the readings of s (see above). It returns its frequency, Hz, its RMS
-// field per component, nT, and the share of the readings' variation about
-// their trends it holds; ok is false when the log is sampled too slowly
-// (under 4 altMinFreq) or too short for a stretch of 64 evenly spaced
+// altSpectrum is the power spectrum of a DC log's readings (see above):
+// power[k], k = 0 .. n/2, is |X_k|² of the windowed stretches of n
+// readings, summed over the stretches (segs) and the three axes; total is
+// the readings' variation about their trends, nT² summed over axes and
 // readings.
-func alternatingLine(s *ingest.Samples) (freq, rms, share float64, ok bool) {
+type altSpectrum struct {
+	power     []float64
+	n, segs   int
+	fs, sw2   float64
+	total     float64
+	lo        int // the lowest bin searched (altMinFreq, past the trends' leakage)
+	noiseSq   float64
+	noiseDone bool
+}
+
+// alternatingSpectrum returns the spectrum of the readings of s; ok is
+// false when the log is sampled too slowly (under 4 altMinFreq) or too
+// short for a stretch of 64 evenly spaced readings.
+func alternatingSpectrum(s *ingest.Samples) (*altSpectrum, bool) {
 	// The rate from the log's span, and runs broken only at real gaps
 	// (dcClock): time stamps rounded to the millisecond or jittered left
 	// no stretch evenly spaced to a per cent, and the mains went unseen
 	// (found in review).
 	fs, gap := dcClock(s)
 	if !(fs >= 4*altMinFreq) || s.Len() < 64 {
-		return 0, 0, 0, false
+		return nil, false
 	}
 	n := 64
 	for n*2 <= min(65536, int(fs)) {
@@ -107,42 +120,127 @@ func alternatingLine(s *ingest.Samples) (freq, rms, share float64, ok bool) {
 		lo += n
 	}
 	if segs == 0 || !(total > 0) {
-		return 0, 0, 0, false
+		return nil, false
 	}
-	df := fs / float64(n)
 	// From altMinFreq, and past the first bins, which hold what is left of
 	// the trends through the window's leakage.
-	lo := max(int(math.Ceil(altMinFreq/df)), 4)
+	lo := max(int(math.Ceil(altMinFreq/(fs/float64(n)))), 4)
+	if lo >= n/2 {
+		return nil, false
+	}
+	return &altSpectrum{power: power, n: n, segs: segs, fs: fs, sw2: sw2, total: total, lo: lo}, true
+}
+
+// lobe returns the mean square per reading, summed over the stretches
+// and axes, of a line whose peak is at bin k: the bins of a Hann window's
+// main lobe about it. By Parseval, a bin j of the one-sided spectrum of a
+// windowed series holds (|X_j|² + |X_{n-j}|²)/n of sum (w y)², and a tone
+// spread over the lobe loses sum w²/n of its mean square to the window.
+// The Nyquist bin, n/2, is its own mirror and counts once: a tone there,
+// a (-1)^i, puts n²a²/4 in it and n²a²/16 in each neighbour, whose
+// mirrors the doubling of the neighbours counts.
+func (a *altSpectrum) lobe(k int) float64 {
+	var line float64
+	for i := max(1, k-2); i <= min(a.n/2, k+2); i++ {
+		w := 2.0
+		if i == a.n/2 {
+			w = 1
+		}
+		line += w * a.power[i] / float64(a.n)
+	}
+	return line / a.sw2
+}
+
+// bin returns the bin nearest frequency f, Hz; -1 when f lies outside
+// the band searched.
+func (a *altSpectrum) bin(f float64) int {
+	k := int(math.Round(f * float64(a.n) / a.fs))
+	if k < a.lo || k > a.n/2 {
+		return -1
+	}
+	return k
+}
+
+// rmsAt returns the RMS field per component, nT, of a line at f, Hz (the
+// lobe about its nearest bin); 0 when f is outside the band searched.
+func (a *altSpectrum) rmsAt(f float64) float64 {
+	k := a.bin(f)
+	if k < 0 {
+		return 0
+	}
+	return math.Sqrt(a.lobe(k) / float64(3*a.segs))
+}
+
+// noise returns the readings' noise per component, nT: from the median
+// bin over the band searched, which lines and the trends' leakage leave
+// alone (white noise of variance s² puts s² sum w² in every bin of every
+// stretch and axis; the median of a sum of 6 segs squared normals is
+// within a few per cent of its mean).
+func (a *altSpectrum) noise() float64 {
+	if !a.noiseDone {
+		b := append([]float64(nil), a.power[a.lo:]...)
+		sort.Float64s(b)
+		a.noiseSq = b[len(b)/2] / (float64(3*a.segs) * a.sw2)
+		a.noiseDone = true
+	}
+	return math.Sqrt(a.noiseSq)
+}
+
+// peak looks for the strongest spectral line in the band searched. It
+// returns its frequency, Hz, its RMS field per component, nT, and the
+// share of the readings' variation about their trends it holds; ok is
+// false when there is none. The band reaches the Nyquist frequency, half
+// the rate: there a line alternates in sign from reading to reading (the
+// 50 Hz mains in a 100 Hz log), and was missed before, the search
+// stopping a bin short and the lobe's power losing its peak bin (found
+// in review: a 100 Hz DC survey beside a 50 Hz cable lost every
+// traverse). At exactly the Nyquist frequency the readings hold
+// a cos(phi) (-1)^i of a line a cos(2 pi f t + phi): the phase at the
+// readings decides how much of it they see, none of one read at its
+// zeros, which is then no harm to the fits.
+func (a *altSpectrum) peak() (freq, rms, share float64, ok bool) {
+	p := a.power
 	peak := -1
-	for i := lo; i < len(power)-1; i++ {
-		if peak < 0 || power[i] > power[peak] {
+	for i := a.lo; i <= a.n/2; i++ {
+		if peak < 0 || p[i] > p[peak] {
 			peak = i
 		}
 	}
 	// A line is a peak, not the edge of the band searched.
-	if peak <= lo || !(power[peak] > 0) || power[peak-1] > power[peak] {
+	if peak <= a.lo || !(p[peak] > 0) || p[peak-1] > p[peak] {
 		return 0, 0, 0, false
 	}
-	// The line's power: the bins of a Hann window's main lobe about the
-	// peak. By Parseval, a bin k of the one-sided spectrum of a windowed
-	// series holds (|X_k|² + |X_{n-k}|²)/n of sum (w y)², and a tone
-	// spread over the lobe loses sum w²/n of its mean square to the window.
-	var line float64
-	for i := max(1, peak-2); i <= min(len(power)-2, peak+2); i++ {
-		line += 2 * power[i] / float64(n)
+	line := a.lobe(peak) // mean square per reading, summed over segments and axes
+	share = line * float64(a.n) / a.total
+	rms = math.Sqrt(line / float64(3*a.segs))
+	// Parabolic interpolation of the log power for the frequency; at the
+	// Nyquist bin the spectrum is symmetric about it.
+	right := p[min(peak+1, a.n/2)]
+	if peak == a.n/2 {
+		right = p[peak-1]
 	}
-	line /= sw2 // mean square per reading, summed over segments and axes
-	share = line * float64(n) / total
-	rms = math.Sqrt(line / float64(3*segs))
-	// Parabolic interpolation of the log power for the frequency.
 	delta := 0.0
-	if power[peak-1] > 0 && power[peak+1] > 0 {
-		a, b, g := math.Log(power[peak-1]), math.Log(power[peak]), math.Log(power[peak+1])
-		if den := a - 2*b + g; den != 0 {
-			delta = 0.5 * (a - g) / den
+	if p[peak-1] > 0 && right > 0 {
+		x, y, z := math.Log(p[peak-1]), math.Log(p[peak]), math.Log(right)
+		if den := x - 2*y + z; den != 0 {
+			delta = 0.5 * (x - z) / den
 		}
 	}
-	return (float64(peak) + delta) * df, rms, share, true
+	return (float64(peak) + delta) * a.fs / float64(a.n), rms, share, true
+}
+
+// alternatingLine looks for the strongest spectral line above altMinFreq
+// in the readings of s (see above and altSpectrum.peak). It returns its
+// frequency, Hz, its RMS field per component, nT, and the share of the
+// readings' variation about their trends it holds; ok is false when the
+// log is sampled too slowly (under 4 altMinFreq) or too short for a
+// stretch of 64 evenly spaced readings, or holds no line.
+func alternatingLine(s *ingest.Samples) (freq, rms, share float64, ok bool) {
+	a, ok := alternatingSpectrum(s)
+	if !ok {
+		return 0, 0, 0, false
+	}
+	return a.peak()
 }
 
 // alternatingWarning names an alternating field in the DC log s at path
@@ -167,6 +265,14 @@ func alternatingWarning(path string, s *ingest.Samples, mains float64) string {
 	for _, m := range cands {
 		if math.Abs(f-m) < 0.02*m {
 			return fmt.Sprintf("%s; it is the %g Hz mains: %s", head, m, slowMainsAdvice(m))
+		}
+		// A harmonic of the mains: on a DC survey most often a
+		// rectifier's ripple on the direct current itself, which whole
+		// mains cycles cancel as they cancel the mains (before, it was
+		// named only as a live AC conductor, to be located with --freq
+		// 100; found in review).
+		if h := mainsHarmonic(f, m); h > 1 {
+			return fmt.Sprintf("%s; it is %s the %g Hz mains' frequency: %s, which averaging over whole mains cycles cancels too: %s", head, harmonicWord(h), m, rippleWhat, slowMainsAdvice(m))
 		}
 		// The mains in a log at a rate under twice theirs lands at
 		// |m - k fs| for the nearest k.

@@ -21,9 +21,11 @@ import (
 // current's field is left. So, where the log's rate holds several
 // readings per mains cycle, a DC run averages the readings in blocks of
 // whole cycles (one reading per block, at the block's mean time and
-// position; triangle weights, see triangle) before the fits: by default when the alternating-field check
-// (dcalternating.go) finds the 50 or 60 Hz mains, always with --dc-mains
-// 50 or 60, never with --dc-mains off.
+// position; triangle weights, see triangle) before the fits: by default
+// when the alternating-field check (dcalternating.go) finds the 50 or
+// 60 Hz mains or a harmonic of them (a rectifier's ripple on the direct
+// current, which whole cycles of the mains cancel as well), always with
+// --dc-mains 50 or 60, never with --dc-mains off.
 
 const (
 	// dcMainsReject is the largest share of the mains' amplitude a block
@@ -39,6 +41,15 @@ const (
 	// fitted as it is instead: a log missing 2% of its readings at random
 	// loses about 6% of them in blocks of 7, and averages well.
 	dcMainsMaxLeft = 0.1
+	// dcMainsMaxHarmonic is the highest harmonic of the mains that auto
+	// takes for the mains: a twelve-pulse rectifier's ripple is the 12th.
+	dcMainsMaxHarmonic = 20
+	// dcMainsKeptFloor is the least RMS field per component, nT, that a
+	// block's leftover of the field's line must reach to be warned of
+	// (besides a third of the noise): a hundredth of a nanotesla, under a
+	// fluxgate's resolution (from memory: 0.01-0.1 nT), for logs with no
+	// noise.
+	dcMainsKeptFloor = 0.01
 )
 
 // parseDCMains reads --dc-mains: "auto" (0, auto true), "off" (0, false),
@@ -78,9 +89,14 @@ func mainsLeft(f, fs float64, n int) float64 {
 // at least two readings and m cycles at most dcMainsMaxBlock long, whose
 // triangle leaves at most dcMainsReject of the mains (5 at 256 Hz and
 // 50 Hz, 5.12 per cycle: 0.07%). n is 0 when the rate cannot (too slow:
-// the mains alias onto the direct current's band).
+// the mains alias onto the direct current's band). Two readings a cycle,
+// the mains at the Nyquist frequency (50 Hz in a 100 Hz log), is the
+// least: the mean of two successive readings cancels a line alternating
+// in sign from one to the next, and with the same rounding a log a
+// fiftieth of a reading per cycle slower (99 Hz-odd for 50 Hz), whose
+// mains alias just under its Nyquist frequency.
 func mainsBlock(f, fs float64) (int, float64) {
-	if !(f > 0) || !(fs > 2*f*0.999) {
+	if !(f > 0) || !(fs >= (2-0.02)*f) {
 		return 0, 0
 	}
 	for m := 1; float64(m)/f <= dcMainsMaxBlock*1.0001; m++ {
@@ -243,21 +259,29 @@ func dcMains(o *locateOptions, path string, s *ingest.Samples) (*ingest.Samples,
 	}
 	f := o.dcMains
 	why := fmt.Sprintf("--dc-mains %g", f)
-	line, rms, share, found := alternatingLine(s)
+	spec, found := alternatingSpectrum(s)
+	var line, rms, share float64
+	if found {
+		line, rms, share, found = spec.peak()
+	}
 	found = found && share >= altShare
+	h := 1 // the line's harmonic of the mains, found by auto
 	if f == 0 {
 		if !found {
 			return s, "", ""
 		}
-		for _, m := range []float64{50, 60} {
-			if math.Abs(line-m) < 0.02*m {
-				f = m
-			}
-		}
+		var both bool
+		f, h, both = mainsOf(spec, line, []float64{50, 60})
 		if f == 0 {
 			return s, "", alternatingWarning(path, s, 0)
 		}
 		why = fmt.Sprintf("the field alternates at about %.3g Hz (%.3g nT RMS per component, %.0f%% of the readings' variation about their trends), the %g Hz mains", line, rms, 100*math.Min(1, share), f)
+		if h > 1 {
+			why = fmt.Sprintf("the field alternates at about %.3g Hz (%.3g nT RMS per component, %.0f%% of the readings' variation about their trends), %s the %g Hz mains' frequency: %s, which whole cycles of the mains cancel too", line, rms, 100*math.Min(1, share), harmonicWord(h), f, rippleWhat)
+			if both {
+				why += " (it is a harmonic of 60 Hz as well, and no other line of either mains tells them apart: whole 50 Hz cycles cancel it either way)"
+			}
+		}
 	}
 	n, rest := mainsBlock(f, fs)
 	if n == 0 {
@@ -292,21 +316,128 @@ func dcMains(o *locateOptions, path string, s *ingest.Samples) (*ingest.Samples,
 	if left > 0 {
 		note += fmt.Sprintf(", %d left out at gaps in the time stamps and group ends (no whole block)", left)
 	}
-	note += fmt.Sprintf("; to locate the AC conductor instead, give --freq %g; --dc-mains off fits the readings as they are", f)
+	if h > 1 {
+		note += fmt.Sprintf("; to locate the alternating current instead, give --freq %g; --dc-mains off fits the readings as they are", float64(h)*f)
+	} else {
+		note += fmt.Sprintf("; to locate the AC conductor instead, give --freq %g; --dc-mains off fits the readings as they are", f)
+	}
 	alert := ""
-	if o.dcMains != 0 && found && math.Abs(line-f) >= 0.02*f {
-		// The flag's frequency against the field's own line (a crew's
-		// setting carried over from the other mains country left 20 nT
-		// in, and said the mains cancelled; found in review).
+	if found && math.Abs(line-f) >= 0.02*f {
+		// The field's own line off the mains averaged (a crew's setting
+		// carried over from the other mains country left 20 nT in, and
+		// said the mains cancelled; found in review), said when what the
+		// blocks leave of it matters against the readings' noise: a third
+		// of it adds a ninth to the misfit's variance, and less is lost in
+		// the fits' own scatter. Rectifier
+		// ripple at twice the mains, which whole cycles cancel, drew this
+		// warning beside its own figure of 7e-6% left (found in review).
 		l := mainsLeft(line, fs, n)
-		alert = fmt.Sprintf("%s: --dc-mains %g, but the field's own line is at about %.3g Hz (%.3g nT RMS per component, %.0f%% of the readings' variation about their trends), which blocks of whole %g Hz cycles leave at about %.2g%% of its amplitude; the fits may miss the readings", path, f, line, rms, 100*math.Min(1, share), f, 100*l*l)
-		for _, m := range []float64{50, 60} {
-			if m != f && math.Abs(line-m) < 0.02*m {
-				alert += fmt.Sprintf(": it is the %g Hz mains, give --dc-mains %g (or auto)", m, m)
+		kept, noise := rms*l*l, spec.noise()
+		if kept >= math.Max(noise/3, dcMainsKeptFloor) {
+			head := fmt.Sprintf("--dc-mains %g, but the field's own line is at about %.3g Hz", f, line)
+			if o.dcMains == 0 {
+				head = fmt.Sprintf("the field's line is at about %.3g Hz", line)
+			}
+			alert = fmt.Sprintf("%s: %s (%.3g nT RMS per component, %.0f%% of the readings' variation about their trends), which blocks of whole %g Hz cycles leave at about %.2g%% of its amplitude, %.2g nT against the readings' %.2g nT noise; the fits may miss the readings", path, head, rms, 100*math.Min(1, share), f, 100*l*l, kept, noise)
+			for _, m := range []float64{50, 60} {
+				if m == f {
+					continue
+				}
+				if k := mainsHarmonic(line, m); k == 1 {
+					alert += fmt.Sprintf(": it is the %g Hz mains, give --dc-mains %g (or auto)", m, m)
+				} else if k > 1 && mainsHarmonic(line, f) == 0 {
+					alert += fmt.Sprintf(": it is %s the %g Hz mains' frequency, give --dc-mains %g (or auto)", harmonicWord(k), m, m)
+				}
 			}
 		}
 	}
 	return avg, note, alert
+}
+
+// rippleWhat names what a line at a harmonic of the mains is in a DC
+// survey.
+const rippleWhat = "the ripple of a rectified direct current (a cathodic-protection rectifier's: twice the mains' frequency from a single-phase bridge, six times from a three-phase one) or a harmonic of a mains cable's field"
+
+// mainsHarmonic returns h when a line at f, Hz, is the h-th harmonic of
+// the mains at m (h = 1: the mains themselves), 0 when it is none up to
+// dcMainsMaxHarmonic: within 2% of the mains' frequency or half a per
+// cent of the harmonic's, whichever is wider (a grid off nominal moves
+// its harmonics h times as far; half a per cent keeps the 50 and 60 Hz
+// families' harmonics, 10 Hz apart or more where they differ, apart up
+// to 1 kHz).
+func mainsHarmonic(f, m float64) int {
+	h := math.Round(f / m)
+	if h < 1 || h > dcMainsMaxHarmonic {
+		return 0
+	}
+	if math.Abs(f-h*m) < math.Max(0.02*m, 0.005*h*m) {
+		return int(h)
+	}
+	return 0
+}
+
+// mainsOf returns the mains frequency among cands of which a line at
+// line, Hz, is the fundamental or a harmonic, h, 0 when none. A line at a
+// harmonic of both 50 and 60 Hz (300, 600 Hz: a three-phase rectifier's
+// ripple) is put to the family whose other harmonics hold more of the
+// spectrum a (a mains fundamental or twice it beside the ripple); when
+// neither holds more than the noise, to 50 Hz, and both is true (whole
+// cycles of either cancel the line).
+func mainsOf(a *altSpectrum, line float64, cands []float64) (f0 float64, h int, both bool) {
+	var fs []float64
+	var hs []int
+	for _, m := range cands {
+		if k := mainsHarmonic(line, m); k > 0 {
+			fs = append(fs, m)
+			hs = append(hs, k)
+		}
+	}
+	switch len(fs) {
+	case 0:
+		return 0, 0, false
+	case 1:
+		return fs[0], hs[0], false
+	}
+	// The evidence of each family: the power of its harmonics that are
+	// not the other's, over the noise's in as many lobes.
+	floor := 10 * a.noise() * a.noise() / float64(a.n) // a lobe's mean square of noise alone (5 bins, Hann)
+	best, bestE := -1, 0.0
+	for i, m := range fs {
+		var e float64
+		for k := 1; k <= dcMainsMaxHarmonic; k++ {
+			g := float64(k) * m
+			if a.bin(g) < 0 {
+				continue
+			}
+			other := false
+			for j, o := range fs {
+				if j != i && mainsHarmonic(g, o) > 0 {
+					other = true
+				}
+			}
+			if other {
+				continue
+			}
+			r := a.rmsAt(g)
+			e += math.Max(0, r*r-floor)
+		}
+		if e > 25*floor && e > bestE {
+			best, bestE = i, e
+		}
+	}
+	if best < 0 {
+		return fs[0], hs[0], true
+	}
+	return fs[best], hs[best], false
+}
+
+// harmonicWord says h times in words.
+func harmonicWord(h int) string {
+	words := []string{"", "once", "twice", "three times", "four times", "five times", "six times", "seven times", "eight times", "nine times", "ten times", "eleven times", "twelve times"}
+	if h >= 1 && h < len(words) {
+		return words[h]
+	}
+	return fmt.Sprintf("%d times", h)
 }
 
 // slowMainsAdvice says how to keep a DC survey whose log is too slow to
