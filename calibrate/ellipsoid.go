@@ -728,6 +728,28 @@ func findClipped(readings [][3]float64) []clipRun {
 	return out
 }
 
+// ClipRun is a value that N readings of axis Axis (0 x, 1 y, 2 z) share
+// at that axis's extreme, the largest when Max: a candidate rail the
+// sensor saturated at (FindClipped).
+type ClipRun struct {
+	Axis  int
+	Value float64
+	N     int
+	Max   bool
+}
+
+// FindClipped returns the candidate rails of the readings by the test
+// FitEllipsoid uses (findClipped): an axis's extreme value repeated at
+// least three times and at least four times as often as the distinct
+// values within 5% of the axis's range below it.
+func FindClipped(readings [][3]float64) []ClipRun {
+	var out []ClipRun
+	for _, c := range findClipped(readings) {
+		out = append(out, ClipRun{Axis: c.axis, Value: c.value, N: c.n, Max: c.max})
+	}
+	return out
+}
+
 // describeClipped says which axes are pinned where, for messages.
 func describeClipped(clip []clipRun, n int) string {
 	var parts []string

@@ -44,3 +44,22 @@ func GroupRMS(g *Group) (text string, ok bool) {
 	}
 	return num(g.RMS), true
 }
+
+// MarshalJSON writes s as an element of a group's sources in results.json.
+// A line whose current the readings do not determine (Unidentifiable
+// holds "current": one of a go-and-return pair that collapsed onto one
+// place, whose fields cancel) has no current_sigma_a: its sigma is not
+// 0, which would read as an exact current, but undetermined, as
+// results.csv leaves the cell empty and route.geojson leaves it out
+// (found in review: ±237 A lines written with a sigma of 0). ReadJSON
+// reads the missing member as zero.
+func (s Source) MarshalJSON() ([]byte, error) {
+	type plain Source // Source's members without this method
+	if s.Kind == KindDipole || !unresolved(&s, "current") {
+		return json.Marshal(plain(s))
+	}
+	return json.Marshal(struct {
+		plain
+		CurrentSigma *float64 `json:"current_sigma_a,omitempty"`
+	}{plain: plain(s)})
+}

@@ -97,6 +97,9 @@ func lineEvidence(f *Fit, res *inverse.Result, ac bool) (drop, limit float64, ok
 // which it is where it can be formed.
 func noCurrentProblem(f *Fit, res *inverse.Result, s *inverse.SourceEstimate, ac bool) string {
 	head := noCurrentHead(s.Current, s.CurrentSigma, ac)
+	if h := undeterminedHead(res, s); h != "" {
+		head = h
+	}
 	if f.sameObject != "" {
 		// An object alone seen from this traverse too (aloneHeldFit): the
 		// field its readings hold is the object's, reported at the other
@@ -157,6 +160,38 @@ func unfitNoCurrent(f *Fit, res *inverse.Result, ac bool) string {
 // agree.
 func noCurrentHead(current, sigma float64, ac bool) string {
 	return fmt.Sprintf("no current found: the strongest line's current, %s A, is within %.3g sigma of zero", PlusMinus(current, sigma), currentK(ac))
+}
+
+// undeterminedHead is the start of noCurrentProblem's text for a group
+// whose strongest line s has a current the readings do not determine
+// (Identifiable.Current false: its sigma is not estimated, and no test
+// against it was made), or "" for one whose current was tested. Lines of
+// +236.6 A and -234.9 A at one place, a go-and-return pair collapsed onto
+// itself whose fields cancel, were worded "237 A, is within 3 sigma of
+// zero" with a sigma of 0 (found in review). The currents are given
+// without their signs, which name no direction of a line whose partner
+// cancels it (and SetRoute's turning of the sign, turnProblemCurrent,
+// finds none to turn).
+func undeterminedHead(res *inverse.Result, s *inverse.SourceEstimate) string {
+	if s.Kind == KindDipole || s.Identifiable.Current {
+		return ""
+	}
+	var mate *inverse.SourceEstimate
+	for i := range res.Sources {
+		o := &res.Sources[i]
+		if o != s && o.Kind != KindDipole && !o.Identifiable.Current && (mate == nil || math.Abs(o.Current) > math.Abs(mate.Current)) {
+			mate = o
+		}
+	}
+	if mate == nil {
+		return fmt.Sprintf("no current found: the line's current (%s A) is not determined by the readings", num(math.Abs(s.Current)))
+	}
+	if s.Current*mate.Current*dot3(s.Dir, mate.Dir) > 0 {
+		return fmt.Sprintf("no current found: the two lines' currents (%s A and %s A, the same way) are not determined: the lines lie together and the readings do not part their currents",
+			num(math.Abs(s.Current)), num(math.Abs(mate.Current)))
+	}
+	return fmt.Sprintf("no current found: the two lines' currents (%s A and %s A, in opposite directions) are not determined: the lines lie together and their fields cancel, a go-and-return pair the readings do not separate",
+		num(math.Abs(s.Current)), num(math.Abs(mate.Current)))
 }
 
 // turnProblemCurrent finds in problem, the problem of a group whose

@@ -78,7 +78,7 @@ func driftWarning(o *locateOptions, sv *survey) string {
 		if !(hi > lo) || math.IsInf(hi-lo, 0) {
 			return "" // no times (or not finite)
 		}
-		noise := diffNoise(g.fields)
+		noise := g.measuredNoise(false)
 		if !(noise > 0) {
 			noise = res.Sigma
 		}

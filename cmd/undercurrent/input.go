@@ -413,6 +413,20 @@ func dropMissingRowsKept(s *ingest.Samples) (int, []int) {
 			rows = append(rows, i)
 		}
 	}
+	keepSampleRows(s, keep)
+	delete(s.Meta, "missing_rows")
+	return n - kept, rows
+}
+
+// keepSampleRows keeps the rows of s where keep is true, in order, in every
+// column.
+func keepSampleRows(s *ingest.Samples, keep []bool) {
+	kept := 0
+	for _, k := range keep {
+		if k {
+			kept++
+		}
+	}
 	filter := func(v []float64) []float64 {
 		if v == nil {
 			return nil
@@ -437,8 +451,6 @@ func dropMissingRowsKept(s *ingest.Samples) (int, []int) {
 		}
 		s.Group = g
 	}
-	delete(s.Meta, "missing_rows")
-	return n - kept, rows
 }
 
 // readLog reads one log with the flags' options, drops rows with missing

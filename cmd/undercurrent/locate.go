@@ -58,6 +58,7 @@ type locateOptions struct {
 	sensorHeight float64
 	groundSigma  float64
 	noise        float64
+	rangeNT      float64 // --range-nt: the magnetometer's range, nT (clipped.go); 0 none given
 	robust       bool
 	despike      bool
 	stepK        float64
@@ -117,6 +118,7 @@ func (o *locateOptions) setFlags(fs *pflag.FlagSet) {
 	fs.Float64Var(&o.sensorHeight, "sensor-height", 0, "the sensors were carried `H` metres above the ground (cover = depth - H); with several sensors at different heights, H is the mean height of all of them; with heights in the log, the ground over each line is taken as the sensors' height where they pass over it minus H, else the ground is taken as level under each traverse")
 	fs.Float64Var(&o.groundSigma, "ground-sigma", 0, "the ground level is known to `S` metres (one sigma) from the depth reference, e.g. how steadily the sensors were held above it; added to the cover sigmas (which otherwise cover the reading noise only); an unsteady height that is not logged also biases the depths and makes their sigmas too small, which S does not mend: log the heights")
 	fs.Float64Var(&o.noise, "noise", 0, "reading noise per axis, `NT` nanotesla, of each reading (for AC, each window's phasor then has NT/sqrt(samples in it)); default, or 0: estimated from the fits")
+	fs.Float64Var(&o.rangeNT, "range-nt", 0, "the magnetometer reads up to ±`NT` nanotesla on each axis: readings within a ten-thousandth of it (or ten times --noise) are taken as clipped and left out of the fits, with a warning; without it, only readings repeating one value exactly at an axis's extreme are")
 	fs.BoolVar(&o.robust, "robust", false, "down-weight outlying readings (Huber weights)")
 	fs.BoolVar(&o.despike, "despike", false, "remove spikes (readings off the local trend of their neighbours, and off a line current's shape fitted to them) before fitting")
 	fs.Float64Var(&o.stepK, "step-k", 0, "report a step in current when it exceeds `K` standard deviations (default 3)")
@@ -192,6 +194,9 @@ func (o *locateOptions) check(fs *pflag.FlagSet) error {
 	}
 	if o.noise < 0 || math.IsNaN(o.noise) || math.IsInf(o.noise, 0) {
 		return usageErrorf("--noise %g: want a noise level in nT >= 0", o.noise)
+	}
+	if o.rangeNT < 0 || math.IsNaN(o.rangeNT) || math.IsInf(o.rangeNT, 0) {
+		return usageErrorf("--range-nt %g: want the magnetometer's range in nT > 0", o.rangeNT)
 	}
 	given := func(name string) bool { return fs != nil && fs.Changed(name) }
 	if o.stepK < 0 || math.IsNaN(o.stepK) || given("step-k") && o.stepK == 0 {
@@ -674,6 +679,7 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 	}
 	// The logs are read and checked first, then corrected and grouped.
 	read := make([]*ingest.Samples, 0, len(logs))
+	clipped := make([]bool, len(logs)) // an AC log with clipped readings left out
 	for k, path := range logs {
 		if o.coil.on() {
 			// A field unit the log gives its own field columns.
@@ -730,6 +736,18 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		}
 		if o.groupBy != "" && s.Group == nil {
 			return nil, fmt.Errorf("%s has no column %q to group by (see \"undercurrent inspect %s\" for its columns)", path, o.groupBy, path)
+		}
+		if !o.coil.on() {
+			// Readings pinned at the sensor's range (clipped.go).
+			if keep, w := clippedRows(path, s, o.rangeNT, o.noise); keep != nil {
+				keepSampleRows(s, keep)
+				if sv.ac {
+					// An AC waveform cut at its peaks has lost its mean.
+					w += clippedACBase
+					clipped[k] = true
+				}
+				sv.alerts = append(sv.alerts, w)
+			}
 		}
 		read = append(read, s)
 	}
@@ -804,7 +822,7 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		if checkTurns {
 			swings.add(path, s)
 		}
-		if !o.coil.on() {
+		if !o.coil.on() && !clipped[k] {
 			field.add(s)
 		}
 		if s.Frame != ingest.FrameENU {

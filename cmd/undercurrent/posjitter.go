@@ -3,6 +3,7 @@ package main
 import (
 	"fmt"
 	"math"
+	"math/cmplx"
 	"strings"
 
 	"undercurrent/inverse"
@@ -49,46 +50,121 @@ const jitterDepthShare = 0.05
 // height (of up), each 0 when there are too few readings
 // (minDiffReadings) or they are not finite; and the reading spacing, m,
 // the median distance between readings eight apart over eight (the
-// scatter does not enter it then).
+// scatter does not enter it then). The differences are taken along each
+// sensor's own track (sensorTracks), not across the rows of several
+// sensors logged in turn.
 func positionScatter(pts [][3]float64) (plan, up, spacing float64) {
-	n := len(pts)
-	if n < minDiffReadings {
-		return 0, 0, 0
-	}
+	return trackScatter(pts, sensorTracks(pts))
+}
+
+// trackScatter is positionScatter over the tracks given, each a list of
+// indices into pts in the log's order, their differences pooled.
+func trackScatter(pts [][3]float64, tracks [][]int) (plan, up, spacing float64) {
 	var dh, dz, sp []float64
-	for i := 2; i+2 < n; i++ {
-		for k := range 3 {
-			v := pts[i-2][k] - 4*pts[i-1][k] + 6*pts[i][k] - 4*pts[i+1][k] + pts[i+2][k]
-			if math.IsNaN(v) || math.IsInf(v, 0) {
-				return 0, 0, 0
-			}
-			if k < 2 {
-				dh = append(dh, math.Abs(v))
-			} else {
-				dz = append(dz, math.Abs(v))
+	for _, tr := range tracks {
+		n := len(tr)
+		if n < minDiffReadings {
+			continue
+		}
+		for i := 2; i+2 < n; i++ {
+			for k := range 3 {
+				v := pts[tr[i-2]][k] - 4*pts[tr[i-1]][k] + 6*pts[tr[i]][k] - 4*pts[tr[i+1]][k] + pts[tr[i+2]][k]
+				if math.IsNaN(v) || math.IsInf(v, 0) {
+					return 0, 0, 0
+				}
+				if k < 2 {
+					dh = append(dh, math.Abs(v))
+				} else {
+					dz = append(dz, math.Abs(v))
+				}
 			}
 		}
+		const lag = 8
+		for i := 0; i+lag < n; i++ {
+			a, b := pts[tr[i]], pts[tr[i+lag]]
+			d := [3]float64{b[0] - a[0], b[1] - a[1], b[2] - a[2]}
+			sp = append(sp, math.Sqrt(d[0]*d[0]+d[1]*d[1]+d[2]*d[2])/lag)
+		}
 	}
-	const lag = 8
-	for i := 0; i+lag < n; i++ {
-		d := [3]float64{pts[i+lag][0] - pts[i][0], pts[i+lag][1] - pts[i][1], pts[i+lag][2] - pts[i][2]}
-		sp = append(sp, math.Sqrt(d[0]*d[0]+d[1]*d[1]+d[2]*d[2])/lag)
+	if len(dh) == 0 {
+		return 0, 0, 0
 	}
 	k := madNormal * math.Sqrt(70)
 	return medianOf(dh) / k, medianOf(dz) / k, medianOf(sp)
 }
 
+// maxSensorsInTurn is the most sensors logged in turn in one group's rows
+// that sensorTracks looks for: a pole or cart carrying two to four.
+const maxSensorsInTurn = 4
+
+// sensorTracks splits the rows of a group, positions pts in the log's
+// order, into the tracks of the sensors logged in turn in them: rows
+// i, i+k, i+2k, ... for the k sensors of a pole or cart whose readings
+// interleave (each sensor's reading at one time, then the next time's),
+// or the one track of all rows. Two sensors on a pole at 0.3 and 0.8 m,
+// or side by side 1 m apart on a cart, in one log, make successive rows
+// jump between them, which the fourth differences along the rows took for
+// a scatter of 0.71 m and 0.97 m (satellite positioning jitter, "fits
+// miss by 452 nT", while every fit was at the 2 nT noise; found in
+// review). The split is by the positions: k sensors in turn is the
+// smallest period whose tracks' scatter (trackScatter, the larger of plan
+// and height) is under half that of the rows in order and within half as
+// much again of the least over the periods tried; scatter the same at
+// every period (independent errors: positioning jitter) keeps one track.
+func sensorTracks(pts [][3]float64) [][]int {
+	split := func(k int) [][]int {
+		tr := make([][]int, k)
+		for i := range pts {
+			tr[i%k] = append(tr[i%k], i)
+		}
+		return tr
+	}
+	one := split(1)
+	if len(pts) < 2*minDiffReadings {
+		return one
+	}
+	scat := make([]float64, maxSensorsInTurn+1)
+	for k := 1; k <= maxSensorsInTurn && len(pts) >= k*minDiffReadings; k++ {
+		p, u, _ := trackScatter(pts, split(k))
+		scat[k] = math.Max(p, u)
+	}
+	if !(scat[1] > 1e-9) { // smooth to well under a micrometre: one track
+		return one
+	}
+	least, best := scat[1], 1
+	for k := 2; k <= maxSensorsInTurn && len(pts) >= k*minDiffReadings; k++ {
+		if scat[k] < least {
+			least, best = scat[k], k
+		}
+	}
+	if best == 1 || !(least < 0.5*scat[1]) {
+		return one
+	}
+	for k := 2; k < best; k++ {
+		if len(pts) >= k*minDiffReadings && scat[k] <= 1.5*least {
+			return split(k)
+		}
+	}
+	return split(best)
+}
+
 // jitterMisfit returns the misfit per field component, nT RMS, that
 // positions scattered by plan (across the plan) and up (in height) m make
 // to the fit res of the readings at pts: the scatter times the RMS over
-// the readings of the gradient of the strongest line's field across its
-// direction in plan and in height (the forward model, inverse.Line),
-// over the square root of 3 components, in quadrature. It also returns that
-// line's depth below the readings' mean height, m. Both are 0 without a
-// line source.
-func jitterMisfit(res *inverse.Result, pts [][3]float64, plan, up float64) (misfit, depth float64) {
-	if res == nil || len(pts) == 0 {
-		return 0, 0
+// the readings of the gradient of the fitted model's field (every line
+// and magnetised object of the fit, the forward models inverse.Line and
+// inverse.Dipole, summed; for AC as phasors) across the strongest line's
+// direction in plan and in height, over the square root of 3 components,
+// in quadrature. It also returns the strongest line's depth below the
+// readings' mean height, m. Both are 0 without a line source, and ok is
+// false for a fit that does not describe a field whose gradient means
+// anything (jitterFitUsable). The strongest line alone gave a go-and-return
+// pair that the readings did not separate (lines of +3717 and -3715 A at
+// one place, whose fields cancel) a gradient thousands of times the pair's,
+// and blamed 0.45 mm of rounding for a 35 nT misfit (found in review).
+func jitterMisfit(res *inverse.Result, pts [][3]float64, plan, up float64, ac bool) (misfit, depth float64, ok bool) {
+	if res == nil || len(pts) == 0 || !jitterFitUsable(res, pts) {
+		return 0, 0, false
 	}
 	var src *inverse.SourceEstimate
 	for i := range res.Sources {
@@ -98,9 +174,8 @@ func jitterMisfit(res *inverse.Result, pts [][3]float64, plan, up float64) (misf
 		}
 	}
 	if src == nil {
-		return 0, 0
+		return 0, 0, false
 	}
-	ln := inverse.Line{Point: src.Point, Dir: src.Dir}
 	across := [3]float64{-src.Dir[1], src.Dir[0], 0}
 	if h := math.Hypot(across[0], across[1]); h > 1e-9 {
 		across[0], across[1] = across[0]/h, across[1]/h
@@ -108,23 +183,92 @@ func jitterMisfit(res *inverse.Result, pts [][3]float64, plan, up float64) (misf
 		across = [3]float64{1, 0, 0} // a vertical line: any horizontal direction
 	}
 	const step = 1e-3 // m, well inside the depth of any conductor fitted
-	cur := math.Abs(src.Current)
 	var gh, gz, zm float64
 	for _, p := range pts {
-		gh += sq(fieldDiff(ln, p, across, step, cur))
-		gz += sq(fieldDiff(ln, p, [3]float64{0, 0, 1}, step, cur))
+		gh += sq(modelDiff(res.Sources, p, across, step, ac))
+		gz += sq(modelDiff(res.Sources, p, [3]float64{0, 0, 1}, step, ac))
 		zm += p[2]
 	}
 	n := float64(len(pts))
-	return math.Sqrt((plan*plan*gh + up*up*gz) / (3 * n)), zm/n - src.Point[2]
+	return math.Sqrt((plan*plan*gh + up*up*gz) / (3 * n)), zm/n - src.Point[2], true
 }
 
-// fieldDiff is the magnitude of the derivative of ln's field, nT per m (current cur)
-// at p along the unit vector u, by a central difference of step h.
-func fieldDiff(ln inverse.Line, p, u [3]float64, h, cur float64) float64 {
-	a := ln.Field([3]float64{p[0] + h*u[0], p[1] + h*u[1], p[2] + h*u[2]}, cur)
-	b := ln.Field([3]float64{p[0] - h*u[0], p[1] - h*u[1], p[2] - h*u[2]}, cur)
-	return 1e9 * math.Sqrt(sq(a[0]-b[0])+sq(a[1]-b[1])+sq(a[2]-b[2])) / (2 * h) // T to nT
+// jitterFitUsable reports whether the fit res of the readings at pts
+// describes a field whose gradient the position scatter's misfit can be
+// taken from: every line's current determined (not a collapsed pair whose
+// currents cancel, inverse Identifiable.Current) and below the lowest
+// reading (a line above the sensors, a fit gone astray, gave 0.015 m of
+// scatter a misfit of 65,000 nT; found in review), and some line carrying
+// a current beyond its noise (report.NoCurrent).
+func jitterFitUsable(res *inverse.Result, pts [][3]float64) bool {
+	low := math.Inf(1)
+	for _, p := range pts {
+		low = math.Min(low, p[2])
+	}
+	found := false
+	for i := range res.Sources {
+		s := &res.Sources[i]
+		if s.Kind != "line" {
+			continue
+		}
+		if !s.Identifiable.Current || !(s.Point[2] < low) {
+			return false
+		}
+		if !report.NoCurrent(s, false) {
+			found = true
+		}
+	}
+	return found
+}
+
+// modelDiff is the magnitude of the derivative of the field of the sources
+// ss, nT per m, at p along the unit vector u, by a central difference of
+// step h: lines and (DC) magnetised objects summed, for AC the lines as
+// phasors of their RMS current and phase.
+func modelDiff(ss []inverse.SourceEstimate, p, u [3]float64, h float64, ac bool) float64 {
+	a := [3]float64{p[0] + h*u[0], p[1] + h*u[1], p[2] + h*u[2]}
+	b := [3]float64{p[0] - h*u[0], p[1] - h*u[1], p[2] - h*u[2]}
+	var d [3]complex128
+	for i := range ss {
+		s := &ss[i]
+		var fa, fb [3]float64
+		w := complex(1, 0)
+		switch s.Kind {
+		case "line":
+			ln := inverse.Line{Point: s.Point, Dir: s.Dir}
+			fa, fb = ln.Field(a, s.Current), ln.Field(b, s.Current)
+			if ac {
+				w = cmplx.Rect(1, s.Phase*math.Pi/180)
+			}
+		case "dipole":
+			if ac {
+				continue // its moment per axis has no phase here
+			}
+			dp := inverse.Dipole{Pos: s.Point}
+			fa, fb = dp.Field(a, s.Moment), dp.Field(b, s.Moment)
+		default:
+			continue
+		}
+		for k := range 3 {
+			d[k] += w * complex(fa[k]-fb[k], 0)
+		}
+	}
+	var m float64
+	for k := range 3 {
+		m += real(d[k])*real(d[k]) + imag(d[k])*imag(d[k])
+	}
+	return 1e9 * math.Sqrt(m) / (2 * h) // T to nT
+}
+
+// jitterShown reports whether the fit res misses its readings by at least
+// half the misfit m, nT per component, that the positions' scatter would
+// make (res.RMS, for AC over the square root of 2, per real part).
+func jitterShown(res *inverse.Result, m float64, ac bool) bool {
+	r := res.RMS
+	if ac {
+		r /= math.Sqrt2
+	}
+	return r >= 0.5*m
 }
 
 // positionJitter measures each group's position scatter and the misfit it
@@ -140,11 +284,15 @@ func positionJitter(sv *survey, fits []report.Fit) string {
 		if g.res == nil || i >= len(fits) {
 			continue
 		}
-		plan, up, spacing := positionScatter(g.points)
+		tracks := sensorTracks(g.points)
+		plan, up, spacing := trackScatter(g.points, tracks)
 		if !(plan > 0 || up > 0) {
 			continue
 		}
-		m, depth := jitterMisfit(g.res, g.points, plan, up)
+		m, depth, ok := jitterMisfit(g.res, g.points, plan, up, sv.ac)
+		if !ok {
+			continue
+		}
 		fits[i].PositionScatter = math.Max(plan, up)
 		fits[i].PositionMisfit = m
 		nz := g.measuredNoise(sv.ac)
@@ -153,6 +301,14 @@ func positionJitter(sv *survey, fits []report.Fit) string {
 			sh = math.Max(plan, up) / depth
 		}
 		if !(nz > 0 && m > jitterNoiseRatio*nz || sh >= jitterDepthShare) {
+			continue
+		}
+		// The fit's own residuals must show the misfit claimed: scatter
+		// uncorrelated from reading to reading is not taken up by a
+		// smooth model, so a fit missing the readings by under half of
+		// it says the positions do not scatter so (jitterShown).
+		if !jitterShown(g.res, m, sv.ac) {
+			fits[i].PositionScatter, fits[i].PositionMisfit = 0, 0
 			continue
 		}
 		key := g.key

@@ -15,7 +15,15 @@ import "math"
 // readout noise stays well within it), and at least a ten-thousandth of
 // the range (a fluxgate's linearity is worst at its ends).
 func saturationMargin(a *AssetConfig, rng float64) float64 {
-	return math.Max(10*a.Noise, 1e-4*rng)
+	return SaturationMargin(a.Noise, rng)
+}
+
+// SaturationMargin is saturationMargin for a sensor of range rng, nT, and
+// noise per reading noise, nT (0 when not known): how near its range a
+// reading must come to be taken as clipped, ten times the noise and at
+// least a ten-thousandth of the range. locate's --range-nt uses it too.
+func SaturationMargin(noise, rng float64) float64 {
+	return math.Max(10*noise, 1e-4*rng)
 }
 
 // saturatedAxis returns the first axis on which sensor s reads within
