@@ -223,20 +223,27 @@ func logCurrents(u []*Placed) []*Placed {
 // a 1.8 A main leaking at 4e-3 per metre: chi-square per degree of
 // freedom 18-19 with one shared rate).
 func useLogTrend(u []*Placed, isStep []bool, k float64) bool {
+	b, ok := logFits(u, isStep, k)
+	return ok && attResolved(u, b)
+}
+
+// logFits is useLogTrend but for the stations' resolving the fall
+// (attResolved), with the shared rate b per metre.
+func logFits(u []*Placed, isStep []bool, k float64) (b float64, ok bool) {
 	if len(u) < 2 {
-		return false
+		return 0, false
 	}
 	b, sb, ok := attenuation(u, isStep)
 	span := u[len(u)-1].Chainage - u[0].Chainage
-	if !ok || !(math.Abs(b)*span >= attFallMin) || !(math.Abs(b) > k*sb) || !attResolved(u, b) {
-		return false
+	if !ok || !(math.Abs(b)*span >= attFallMin) || !(math.Abs(b) > k*sb) {
+		return 0, false
 	}
 	chi, dof, ok := stretchChi(u, isStep, true)
 	if !ok || dof < 1 || !(chi <= attChiMax*float64(dof)) {
-		return false
+		return 0, false
 	}
 	lin, _, ok := stretchChi(u, isStep, false)
-	return ok && chi < lin
+	return b, ok && chi < lin
 }
 
 // stretchChi fits each stretch of u between the intervals marked in
@@ -354,7 +361,11 @@ func logTrendFor(u []*Placed, set *Settings) bool {
 		clear = append(clear, p)
 		cut = false
 	}
-	return useLogTrend(clear, clearStep, k)
+	// Whether the stations resolve the fall's shape is judged on them
+	// all: those left out are only near the steps (a gap of 160 m where
+	// two steps were found 60 m apart on the 400 m pipe had refused it).
+	b, ok := logFits(clear, clearStep, k)
+	return ok && attResolved(u, b)
 }
 
 // attStepReach is how many stations each side of a step found in log
