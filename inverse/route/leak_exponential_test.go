@@ -44,7 +44,7 @@ func TestUniformLeakageNoStep(t *testing.T) {
 			continue
 		}
 		for _, v := range att[0].Values {
-			want, ok := map[string]float64{"attenuation": 100 * (1 - math.Exp(-1)), "attenuation (dB)": 20 / math.Ln10}[v.Name]
+			want, ok := map[string]float64{"%/km": 100 * (1 - math.Exp(-1)), "dB/km": 20 / math.Ln10}[v.Unit]
 			if ok && math.Abs(v.Value-want) > 4*v.Sigma {
 				t.Errorf("seed %d: %s %.4g ± %.2g %s, want %.4g", seed, v.Name, v.Value, v.Sigma, v.Unit, want)
 			}
