@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"strconv"
 	"strings"
 
 	"undercurrent/calibrate"
@@ -57,6 +58,13 @@ const (
 	// maxRefitGroups is how many groups are fitted again for each way of
 	// reading tried (spread over the survey).
 	maxRefitGroups = 12
+	// screenGroups is how many groups are fitted again first for each of
+	// the ways of reading far from the base's field (tried only when the
+	// fits all fail): a way that fits must fit each group, so one whose
+	// group in the middle of the survey misses by over soundMisfit times
+	// its noise is passed over (a failing group's fit takes tens of ms,
+	// and there are 47 ways).
+	screenGroups = 1
 	// trackAgreeDeg is the largest angle between the refitted lines'
 	// median azimuth and the track through their crossings for a way of
 	// reading to be taken as the right one: a straight conductor's
@@ -64,6 +72,28 @@ const (
 	// Fen line, a mirror fitted as a turn, put lines at 120° along a
 	// 60° track).
 	trackAgreeDeg = 15.0
+	// trackPartDeg is the least difference of the lines' median angle
+	// off the direction through their neighbours' crossings
+	// (localTrackOff) for one way of reading that fits to the noise to
+	// be taken over another that fits as well: a mirror image and a turn
+	// put a line of azimuth θ at θ and -θ (bx and by swapped on Kestrel
+	// Moor's route, 87° then 100°: lines 6° and 20° off their track read
+	// as a turn, 1° read right), where the crossings and a bend leave the
+	// right reading's lines within a degree or two of it.
+	trackPartDeg = 3.0
+	// quarterNearDeg is how far from a quarter or half turn a turn
+	// measured from the field may be for that quarter turn to be tried:
+	// where the fits all fail the level is the readings' median, which
+	// holds the conductors' field, and where the field is steep that moves
+	// its horizontal direction by degrees (a quarter turn read as 82.2°
+	// at a dip of 83°, found in review).
+	quarterNearDeg = 15.0
+	// unseenTurnMinDeg is the least turn about the vertical the lines'
+	// angle off their track is taken to show when the field's direction
+	// cannot (unseenTurnWarning): 2° is about 1 - cos 2° = 0.06% of the
+	// current, and several times the scatter of the lines' azimuths over
+	// a straight conductor.
+	unseenTurnMinDeg = 2.0
 )
 
 // orientTest lets baseFieldWarnings fit the groups again with their
@@ -74,6 +104,9 @@ type orientTest struct {
 	// turn; nil when the groups cannot be fitted again (AC, a
 	// sensor-frame log).
 	refit func(turn func([3]float64) [3]float64) refitResult
+	// screen is refit over at most screenGroups of the groups, to pass
+	// over quickly the ways of reading that cannot fit (nil: use refit).
+	screen func(turn func([3]float64) [3]float64) refitResult
 	// asRead is that median of the fits as they are (NaN: unknown).
 	asRead float64
 	// enu is set when every log is in east, north, up, where
@@ -81,6 +114,98 @@ type orientTest struct {
 	enu bool
 	// axes is the --field-axes already applied.
 	axes axisMap
+	// asReadTrack is the lines' angle off the direction through their
+	// neighbours' crossings, the fits as they are (sound fits only).
+	asReadTrack trackTurn
+}
+
+// trackTurn is the fitted lines' angle off the direction through their
+// neighbours' crossings (localTrackOff), degrees.
+type trackTurn struct {
+	// signed is the median of each line's azimuth less the direction
+	// through its neighbours' crossings, in (-90, 90] (positive:
+	// clockwise of it seen from above); abs the median of its size.
+	signed, abs float64
+	// spread is the scatter of the angles about their median (1.4826
+	// times the median absolute deviation), se that of signed (spread
+	// over the root of n).
+	spread, se float64
+	// same is the share of the angles of signed's sign.
+	same float64
+	n    int
+}
+
+// localTrackOff returns the lines' angle off their track: the crossing
+// points pts (east, north, m) ordered along their principal direction,
+// each line's azimuth az (clockwise from north, degrees) is compared with
+// the direction from the crossing before it to the one after it (from its
+// own to its neighbour's at the ends). Unlike trackOffDeg it follows a
+// bending route. n is 0 for fewer than four lines.
+func localTrackOff(pts [][2]float64, az []float64) trackTurn {
+	nan := math.NaN()
+	out := trackTurn{signed: nan, abs: nan, spread: nan, se: nan, same: nan}
+	if len(pts) < 4 || len(az) != len(pts) {
+		return out
+	}
+	var me, mn float64
+	for _, p := range pts {
+		me, mn = me+p[0], mn+p[1]
+	}
+	me, mn = me/float64(len(pts)), mn/float64(len(pts))
+	var see, snn, sen float64
+	for _, p := range pts {
+		de, dn := p[0]-me, p[1]-mn
+		see, snn, sen = see+de*de, snn+dn*dn, sen+de*dn
+	}
+	th := 0.5 * math.Atan2(2*sen, see-snn)
+	ux, uy := math.Cos(th), math.Sin(th)
+	idx := make([]int, len(pts))
+	for i := range idx {
+		idx[i] = i
+	}
+	along := func(i int) float64 { return (pts[i][0]-me)*ux + (pts[i][1]-mn)*uy }
+	sort.SliceStable(idx, func(a, b int) bool { return along(idx[a]) < along(idx[b]) })
+	var off []float64
+	for k, i := range idx {
+		a, b := idx[max(0, k-1)], idx[min(len(idx)-1, k+1)]
+		de, dn := pts[b][0]-pts[a][0], pts[b][1]-pts[a][1]
+		if math.Hypot(de, dn) < 1 {
+			continue
+		}
+		dir := math.Atan2(de, dn) * 180 / math.Pi
+		off = append(off, math.Remainder(az[i]-dir, 180))
+	}
+	if len(off) < 4 {
+		return out
+	}
+	out.n = len(off)
+	out.signed = finiteMedian(off)
+	abs := make([]float64, len(off))
+	dev := make([]float64, len(off))
+	same := 0
+	for i, v := range off {
+		abs[i] = math.Abs(v)
+		dev[i] = math.Abs(v - out.signed)
+		if v*out.signed > 0 {
+			same++
+		}
+	}
+	out.abs = finiteMedian(abs)
+	out.spread = 1.4826 * finiteMedian(dev)
+	out.se = out.spread / math.Sqrt(float64(len(off)))
+	out.same = float64(same) / float64(len(off))
+	return out
+}
+
+// clearlyCloser is set when lines with angles a off their track follow it
+// clearly better than lines with b: by trackPartDeg, and by four times a's
+// scatter over the root of the lines' number.
+func clearlyCloser(a, b trackTurn) bool {
+	if a.n < 4 || b.n < 4 || !finite(a.abs) || !finite(b.abs) {
+		return false
+	}
+	margin := math.Max(trackPartDeg, 4*a.spread/math.Sqrt(float64(a.n)))
+	return b.abs > a.abs+margin
 }
 
 func angleDeg(a, b [3]float64) float64 {
@@ -104,6 +229,9 @@ type axesCandidate struct {
 	trackOff float64
 	// background is the refitted groups' median background.
 	background [3]float64
+	// local is the refitted lines' angle off the direction through
+	// their neighbours' crossings.
+	local trackTurn
 }
 
 // refitResult is what fitting the groups again with their fields turned
@@ -113,6 +241,7 @@ type axesCandidate struct {
 type refitResult struct {
 	misfit, trackOff float64
 	background       [3]float64
+	local            trackTurn
 }
 
 // trackOK is set when the refitted lines follow the track through them.
@@ -167,42 +296,113 @@ func compose(m, a axisMap) axisMap {
 	return out
 }
 
+// remedy returns the flag that reads the log as c does (flag: just the
+// flag and its value, "" when none applies) and the sentence offering it.
+func (c axesCandidate) remedy(s [3]float64, mountYaw float64, ot *orientTest) (flag, sentence string) {
+	_, turn, yaw := c.describe(s, mountYaw)
+	switch {
+	case turn:
+		flag = fmt.Sprintf("--mount-yaw %.0f", yaw)
+		return flag, flag + " turns the readings back"
+	case ot != nil && ot.enu && math.Remainder(mountYaw, 360) == 0:
+		flag = "--field-axes " + compose(c.m, ot.axes).flag()
+		return flag, flag + " reads the field columns so (the field alone: --frame would turn the positions too)"
+	case ot != nil && ot.enu:
+		return "", "run again without --mount-yaw and follow this check's advice then (--field-axes reads the field columns in another order or sign; --mount-yaw turns them after it)"
+	}
+	return "", "read the field columns in the right order and sign (for a sensor-frame log, its x forward, y right, z down)"
+}
+
 // axesWarning returns the warning for a survey field s that some way of
 // reading the columns (not the identity) brings onto the base's field b,
 // and false when none does (a turn or tilt of another size).
+//
+// The ways are looked for only when the field is axesMinDeg or more from
+// the base's, unless the fits as read miss their readings by more than
+// soundMisfit times their noise: then they are tried whatever the angle
+// (at a steep field a quarter turn moves the field by 8°, a swap of bx and
+// by by 6°, found in review), and if none within the allowance fits, the
+// others are tried too, nearest first, until one does: the refit decides.
 //
 // When a way of reading is confirmed by the refit, level is the refitted
 // groups' median background (for the |B| check: a failed fit's
 // background, or the readings' median, holds a line's field).
 func axesWarning(what string, s, b [3]float64, angle, allow float64, basePath, where string, mountYaw float64, ot *orientTest) (msg string, ok bool, level *[3]float64) {
 	tol := math.Max(allow, axesMatchDeg)
-	if angle < axesMinDeg {
+	refitted := ot != nil && ot.refit != nil
+	failing := refitted && ot.asRead > soundMisfit
+	if angle < axesMinDeg && !failing {
 		return "", false, nil
 	}
-	var cands []axesCandidate
+	var cands, far []axesCandidate
 	for _, m := range allAxisMaps() {
 		if m.identity() {
 			continue
 		}
-		if a := angleDeg(m.apply(s), b); a <= tol {
-			cands = append(cands, axesCandidate{m: m, angle: a, misfit: math.NaN()})
+		c := axesCandidate{m: m, angle: angleDeg(m.apply(s), b), misfit: math.NaN(), trackOff: math.NaN()}
+		if c.angle <= tol {
+			cands = append(cands, c)
+		} else {
+			far = append(far, c)
+		}
+	}
+	try := func(c *axesCandidate) {
+		r := ot.refit(c.m.apply)
+		c.misfit, c.trackOff, c.background, c.local = r.misfit, r.trackOff, r.background, r.local
+	}
+	// confirmed is set when the groups fitted again with the readings
+	// read as c fit to their noise. Where the fits as read all failed, the
+	// level matched was the readings' median, and any turn about the
+	// vertical of a line's field is a line's field: a sensor turned 135°
+	// read back by a quarter turn fits to the noise. The refitted groups'
+	// backgrounds, from sound fits, must then be the base's field too.
+	confirmed := func(c axesCandidate) bool {
+		if !(c.misfit <= refitGood) {
+			return false
+		}
+		if !failing {
+			return true
+		}
+		bg := c.background
+		return finite(bg[0]+bg[1]+bg[2]) && angleDeg(bg, b) <= tol
+	}
+	if refitted {
+		for i := range cands {
+			try(&cands[i])
+		}
+	}
+	if failing {
+		fits := false
+		for _, c := range cands {
+			fits = fits || confirmed(c)
+		}
+		if !fits {
+			// None near the base's field fits: the level, the
+			// readings' median, may be off by more than the allowance.
+			sort.SliceStable(far, func(i, j int) bool { return far[i].angle < far[j].angle })
+			for _, c := range far {
+				if ot.screen != nil {
+					if r := ot.screen(c.m.apply); !(r.misfit <= soundMisfit) {
+						continue
+					}
+				}
+				try(&c)
+				if confirmed(c) {
+					cands = append(cands, c)
+					break
+				}
+			}
 		}
 	}
 	if len(cands) == 0 {
 		return "", false, nil
 	}
-	refitted := ot != nil && ot.refit != nil
 	if refitted {
-		for i := range cands {
-			m := cands[i].m
-			r := ot.refit(m.apply)
-			cands[i].misfit, cands[i].trackOff, cands[i].background = r.misfit, r.trackOff, r.background
-		}
 		// The ways that fit to the noise first, of them those whose
 		// lines follow their track, then turns before mirror images.
 		rank := func(c axesCandidate) [3]int {
 			var r [3]int
-			if !(c.misfit <= refitGood) {
+			if !confirmed(c) {
 				r[0] = 1
 			}
 			if !c.trackOK() {
@@ -231,38 +431,57 @@ func axesWarning(what string, s, b [3]float64, angle, allow float64, basePath, w
 			}
 			return cands[i].angle < cands[j].angle
 		})
+		// Of the ways that fit and follow the track alike, the one whose
+		// lines follow it clearly better along the route (a turn and a
+		// mirror image put a line of azimuth θ at θ and -θ).
+		top := 0
+		for i := range cands {
+			c, t := cands[i], cands[top]
+			if i != top && confirmed(c) && confirmed(t) && c.trackOK() == t.trackOK() && clearlyCloser(c.local, t.local) {
+				top = i
+			}
+		}
+		if top > 0 {
+			c := cands[top]
+			copy(cands[1:top+1], cands[:top])
+			cands[0] = c
+		}
 	} else {
 		sort.SliceStable(cands, func(i, j int) bool { return cands[i].angle < cands[j].angle })
 	}
 	best := cands[0]
-	msg = fmt.Sprintf("%s east %.0f, north %.0f, up %.0f nT) points %.1f° away from the base record's (%.0f, %.0f, %.0f nT; %s, %s), more than the %.1f° that local anomalies and the distance between them allow, and is the base's field, to %.1f°, with the sensor's axes read wrong",
-		what, s[0], s[1], s[2], angle, b[0], b[1], b[2], basePath, where, allow, best.angle)
-	desc, turn, yaw := best.describe(s, mountYaw)
-	remedy := ""
-	if turn {
-		remedy = fmt.Sprintf("--mount-yaw %.0f turns the readings back", yaw)
-	} else if ot != nil && ot.enu && math.Remainder(mountYaw, 360) == 0 {
-		remedy = fmt.Sprintf("--field-axes %s reads the field columns so (the field alone: --frame would turn the positions too)", compose(best.m, ot.axes).flag())
-	} else if ot != nil && ot.enu {
-		remedy = fmt.Sprintf("run again without --mount-yaw and follow this check's advice then (--field-axes reads the field columns in another order or sign; --mount-yaw turns them after it)")
+	if best.angle <= tol {
+		msg = fmt.Sprintf("%s east %.0f, north %.0f, up %.0f nT) points %.1f° away from the base record's (%.0f, %.0f, %.0f nT; %s, %s), more than the %.1f° that local anomalies and the distance between them allow, and is the base's field, to %.1f°, with the sensor's axes read wrong",
+			what, s[0], s[1], s[2], angle, b[0], b[1], b[2], basePath, where, allow, best.angle)
 	} else {
-		remedy = "read the field columns in the right order and sign (for a sensor-frame log, its x forward, y right, z down)"
+		msg = fmt.Sprintf("%s east %.0f, north %.0f, up %.0f nT) points %.1f° away from the base record's (%.0f, %.0f, %.0f nT; %s, %s), more than the %.1f° that local anomalies and the distance between them allow; no way of reading the columns brings it within that of the base's field (%.1f° at best), but that level holds the conductors' field and the readings fit once read another way, so the sensor's axes are read wrong",
+			what, s[0], s[1], s[2], angle, b[0], b[1], b[2], basePath, where, allow, best.angle)
 	}
-	good := refitted && best.misfit <= refitGood
+	desc, _, _ := best.describe(s, mountYaw)
+	_, remedy := best.remedy(s, mountYaw, ot)
+	good := refitted && confirmed(best)
 	switch {
 	case good:
 		if bg := best.background; finite(bg[0] + bg[1] + bg[2]) {
 			level = &bg
 		}
 		// Other ways of reading that fit as well cannot be told apart
-		// by these readings (a line along east sees no east field).
+		// by these readings (a line along east sees no east field),
+		// unless their lines cross the track, or follow it clearly
+		// worse along the route.
 		var also, off []string
 		for _, c := range cands[1:] {
-			if c.misfit <= math.Max(refitGood, 1.5*best.misfit) {
+			if c.misfit <= math.Max(refitGood, 1.5*best.misfit) && (c.misfit > refitGood || confirmed(c)) {
 				d, _, _ := c.describe(s, mountYaw)
-				if best.trackOK() && !c.trackOK() {
+				switch {
+				case best.trackOK() && !c.trackOK():
 					off = append(off, fmt.Sprintf("%s (its lines %.0f° off the track through them)", d, c.trackOff))
-				} else {
+				case clearlyCloser(best.local, c.local):
+					off = append(off, fmt.Sprintf("%s (its lines %.0f° off the direction through their neighbours' crossings, median, against %.0f° read as above)", d, c.local.abs, best.local.abs))
+				default:
+					if f, _ := c.remedy(s, mountYaw, ot); f != "" {
+						d += ", which " + f + " reads"
+					}
 					also = append(also, d)
 				}
 			}
@@ -274,10 +493,10 @@ func axesWarning(what string, s, b [3]float64, angle, allow float64, basePath, w
 		msg += fmt.Sprintf(": %s. Fitted again with the readings read so, the groups' fits miss their readings by %.3g times their noise (median), against %.3g times as read%s; %s",
 			desc, best.misfit, ot.asRead, track, remedy)
 		if len(off) > 0 {
-			msg += fmt.Sprintf(". Read as %s, each group fits as well but the lines found cross the track, so that reading is not offered", strings.Join(off, "; or as "))
+			msg += fmt.Sprintf(". Read as %s, each group fits as well but the lines found follow the route worse, so that reading is not offered", strings.Join(off, "; or as "))
 		}
 		if len(also) > 0 {
-			msg += fmt.Sprintf(". These readings fit as well read as %s, which they cannot tell apart: check the mount and the columns before following either", strings.Join(also, "; or as "))
+			msg += fmt.Sprintf(". These readings fit as well read as %s, and the lines found follow the route as well either way, so the readings cannot tell them apart: check the mount and the columns, and give the flag of the one found", strings.Join(also, "; or as "))
 		}
 	case refitted:
 		var tried []string
@@ -340,14 +559,43 @@ func turnWarning(what string, s, b [3]float64, angle, allow float64, basePath, w
 	}
 	if psi >= 0.5 {
 		yawFlag := mountYaw - dh
-		tried := ""
+		tried, how := "", ""
 		offer := true
 		if ot != nil && ot.refit != nil {
 			// The readings as read are already turned back by
 			// mountYaw; turn them by the rest.
-			r := -(yawFlag - mountYaw) * math.Pi / 180
-			sr, cr := math.Sincos(r)
-			got := ot.refit(func(v [3]float64) [3]float64 { return [3]float64{cr*v[0] - sr*v[1], sr*v[0] + cr*v[1], v[2]} })
+			turnBy := func(yaw float64) refitResult {
+				r := -(yaw - mountYaw) * math.Pi / 180
+				sr, cr := math.Sincos(r)
+				return ot.refit(func(v [3]float64) [3]float64 { return [3]float64{cr*v[0] - sr*v[1], sr*v[0] + cr*v[1], v[2]} })
+			}
+			got := turnBy(yawFlag)
+			// The turn measured from a level that holds the
+			// conductors' field (no fit sound) is off by as much as
+			// that field turns the horizontal direction, degrees where
+			// the field is steep: measured again from the backgrounds
+			// of the groups fitted with the readings turned back, and
+			// taken when those fit as well.
+			if bg := got.background; got.misfit <= refitGood && finite(bg[0]+bg[1]+bg[2]) {
+				if res := math.Remainder(headingDeg(bg)-headingDeg(b), 360); math.Abs(res) >= 0.5 {
+					if g2 := turnBy(yawFlag - res); g2.misfit <= math.Max(refitGood, 1.2*got.misfit) {
+						how = fmt.Sprintf(" (measured again from the backgrounds of the groups fitted with the readings turned back by %.1f°)", yawFlag)
+						yawFlag, got = yawFlag-res, g2
+					}
+				}
+			}
+			// A mount is turned by quarter turns: the quarter turn
+			// near the turn measured, when the refit confirms it (its
+			// fits as good, its lines following the route no worse).
+			if q := 90 * math.Round(yawFlag/90); math.Remainder(q, 360) != 0 && math.Abs(yawFlag-q) <= quarterNearDeg && math.Abs(yawFlag-q) >= 0.05 {
+				gq := turnBy(q)
+				bq := gq.background
+				level := !finite(bq[0]+bq[1]+bq[2]) || angleDeg(bq, b) <= math.Max(allow, axesMatchDeg)
+				if gq.misfit <= math.Max(refitGood, 1.2*got.misfit) && level && !clearlyCloser(got.local, gq.local) {
+					how = fmt.Sprintf(" (the quarter turn nearest the %.1f° measured: the groups fitted again with the readings turned back by it fit their readings to %.3g times their noise (median), and their lines follow the route as well or better)", yawFlag, gq.misfit)
+					yawFlag, got = q, gq
+				}
+			}
 			if !(got.misfit <= math.Max(refitGood, 1.2*ot.asRead)) {
 				offer = false
 				tried = fmt.Sprintf(" Fitted again with the readings turned back by it, the groups' fits still miss their readings by %.3g times their noise (median): a turned sensor's readings fit once turned back, so the cause is likely elsewhere (two field columns swapped, an axis reversed, a frame mistaken) and no --mount-yaw is offered.", got.misfit)
@@ -359,9 +607,9 @@ func turnWarning(what string, s, b [3]float64, angle, allow float64, basePath, w
 		}
 		msg += fmt.Sprintf(" A turn about the vertical of %.1f° (a magnetometer turned on its pole or mount, a heading reference off) turns every fitted line with it: azimuths off by about %.1f°, plan offsets with them%s", psi, psi, low)
 		if offer {
-			yaw := fmt.Sprintf("if the magnetometer is turned on its mount, --mount-yaw %.1f turns the readings back.", yawFlag)
+			yaw := fmt.Sprintf("if the magnetometer is turned on its mount, --mount-yaw %s turns the readings back%s.", tenths(yawFlag), how)
 			if cal == nil {
-				yaw = fmt.Sprintf("if the log is already corrected and the magnetometer is turned on its mount, --mount-yaw %.1f turns the readings back.", yawFlag)
+				yaw = fmt.Sprintf("if the log is already corrected and the magnetometer is turned on its mount, --mount-yaw %s turns the readings back%s.", tenths(yawFlag), how)
 			}
 			msg += "; " + yaw
 		} else {
@@ -372,6 +620,11 @@ func turnWarning(what string, s, b [3]float64, angle, allow float64, basePath, w
 		msg += fmt.Sprintf(" A tilt of %.1f° (a leaning pole, an attitude reference off) turns the field into components no line gives: plan offsets off, currents scattered, perhaps a phantom return line.", tilt)
 	}
 	return msg + " Check how the sensor is mounted and its attitude reference"
+}
+
+// tenths writes v to a tenth, with no trailing zero (90, 20.3).
+func tenths(v float64) string {
+	return strconv.FormatFloat(math.Round(v*10)/10, 'f', -1, 64)
 }
 
 // groupMisfit is a DC group's fit's RMS over its measured noise (NaN when
@@ -413,22 +666,46 @@ func newOrientTest(o *locateOptions, sv *survey, enu bool) *orientTest {
 		return ot
 	}
 	gs := refitGroups(sv)
-	var now []float64
+	var now, az []float64
+	var pts [][2]float64
 	for _, g := range gs {
 		if g.err == nil {
 			if r := groupMisfit(g, g.res); finite(r) {
 				now = append(now, r)
+				if r <= soundMisfit && len(g.res.Sources) > 0 && g.res.Sources[0].Kind == "line" {
+					p := g.res.Sources[0].Point
+					pts = append(pts, [2]float64{p[0], p[1]})
+					az = append(az, g.res.Sources[0].Azimuth)
+				}
 			}
 		}
 	}
 	if len(now) > 0 {
 		ot.asRead = finiteMedian(now)
 	}
+	ot.asReadTrack = localTrackOff(pts, az)
 	if !enu || len(gs) == 0 {
 		return ot
 	}
 	set := o.fitSettings()
-	ot.refit = func(turn func([3]float64) [3]float64) refitResult {
+	refitOf := func(gs []*group) func(turn func([3]float64) [3]float64) refitResult {
+		return func(turn func([3]float64) [3]float64) refitResult { return refitWith(gs, turn, sv, o, set) }
+	}
+	ot.refit = refitOf(gs)
+	if len(gs) > screenGroups {
+		few := make([]*group, 0, screenGroups)
+		for i := range screenGroups {
+			few = append(few, gs[(2*i+1)*len(gs)/(2*screenGroups)])
+		}
+		ot.screen = refitOf(few)
+	}
+	return ot
+}
+
+// refitWith fits the groups gs again with each reading's field turned by
+// turn (orientTest.refit).
+func refitWith(gs []*group, turn func([3]float64) [3]float64, sv *survey, o *locateOptions, set *inverse.Settings) refitResult {
+	{
 		var r, az, be, bn, bu []float64
 		var pts [][2]float64
 		for _, g := range gs {
@@ -457,9 +734,8 @@ func newOrientTest(o *locateOptions, sv *survey, enu bool) *orientTest {
 		if len(r) == 0 {
 			return refitResult{misfit: nan, trackOff: nan, background: [3]float64{nan, nan, nan}}
 		}
-		return refitResult{misfit: finiteMedian(r), trackOff: trackOffDeg(pts, az), background: [3]float64{finiteMedian(be), finiteMedian(bn), finiteMedian(bu)}}
+		return refitResult{misfit: finiteMedian(r), trackOff: trackOffDeg(pts, az), background: [3]float64{finiteMedian(be), finiteMedian(bn), finiteMedian(bu)}, local: localTrackOff(pts, az)}
 	}
-	return ot
 }
 
 // surveyLevel returns the survey's field to compare with the base's or
@@ -565,4 +841,57 @@ func trackOffDeg(pts [][2]float64, az []float64) float64 {
 	mean := math.Mod(math.Atan2(s, c)*90/math.Pi+360, 180)
 	d := math.Abs(math.Remainder(track-mean, 180))
 	return d
+}
+
+// unseenTurnWarning returns a warning when the survey's field s is within
+// the allowance of the base's b, so that no turn is seen in it, but the
+// fitted lines all run off the direction through their neighbours'
+// crossings by the same angle, as a sensor turned about the vertical makes
+// them; "" otherwise. Where the field is steep a turn about the vertical
+// moves it little: by the turn times |H|/|B| (a 6° turn by 0.7° at a dip
+// of 83°, under the 1° allowed), so turns up to the allowance times
+// |B|/|H| cannot be seen in it (found in review: a sensor turned 6° there
+// gave currents 27 sigma low with no word).
+func unseenTurnWarning(s, b [3]float64, allow float64, basePath, where string, cal *calibrate.Calibration, mountYaw float64, ot *orientTest) string {
+	if ot == nil {
+		return ""
+	}
+	lt := ot.asReadTrack
+	h := math.Hypot(s[0], s[1])
+	if lt.n < 4 || !(h > 0) {
+		return ""
+	}
+	// The turn the field's direction cannot show, degrees.
+	unseen := allow * norm(s) / h
+	psi := -lt.signed // lines turned clockwise: readings turned anticlockwise
+	if !(math.Abs(psi) >= unseenTurnMinDeg) || !(math.Abs(psi) > 4*lt.se) || !(lt.same >= 0.75) {
+		return ""
+	}
+	// A turn the field would have shown is not what turns the lines.
+	if math.Abs(psi) > 1.5*unseen {
+		return ""
+	}
+	yawFlag := mountYaw + psi
+	after := ""
+	if ot.refit != nil {
+		r := -psi * math.Pi / 180
+		sr, cr := math.Sincos(r)
+		got := ot.refit(func(v [3]float64) [3]float64 { return [3]float64{cr*v[0] - sr*v[1], sr*v[0] + cr*v[1], v[2]} })
+		if !(got.misfit <= math.Max(refitGood, 1.2*ot.asRead)) || !(got.local.n >= 4 && math.Abs(got.local.signed) < 0.5*math.Abs(psi)) {
+			return ""
+		}
+		after = fmt.Sprintf("; fitted again with the readings turned back by it, the lines run %.1f° off (median) and fit their readings to %.3g times their noise", math.Abs(got.local.signed), got.misfit)
+	}
+	side := "anticlockwise"
+	if psi < 0 {
+		side = "clockwise"
+	}
+	dip := math.Atan2(-s[2], h) * 180 / math.Pi
+	calNote := ""
+	if cal == nil {
+		calNote = " (no --calibration was given: a sensor's uncorrected offsets and soft iron turn the field too, so calibrate it first unless the log is already corrected)"
+	}
+	return fmt.Sprintf("the survey's field is within the %.1f° of the base record's (%s, %s) that local anomalies and the distance between them allow, but at this site's dip of %.0f° a turn of the sensor about the vertical moves the field by only %.2f of the turn, so turns up to %.1f° cannot be seen in its direction. The fitted lines run %.1f° %s of the direction through their neighbours' crossings (median of %d groups, ± %.2f°; %.0f%% of them on that side), as a sensor turned %.1f° %s (seen from above) on its mount or pole makes them: currents and depths low by 1 - cos %.1f° (%.2f%%), azimuths and plan offsets turned with it. A conductor that bends or snakes between the traverses turns its lines off that direction too; if it runs straight and the magnetometer is turned on its mount%s, --mount-yaw %s turns the readings back%s. Check how the sensor is mounted and its heading reference",
+		allow, basePath, where, math.Abs(dip), h/norm(s), unseen, math.Abs(psi), map[bool]string{true: "clockwise", false: "anticlockwise"}[lt.signed > 0], lt.n, lt.se, 100*lt.same,
+		math.Abs(psi), side, math.Abs(psi), 100*(1-math.Cos(psi*math.Pi/180)), calNote, tenths(yawFlag), after)
 }

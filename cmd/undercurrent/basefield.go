@@ -211,6 +211,10 @@ func baseFieldWarnings(basePath string, base *ingest.Samples, f *surveyField, or
 		} else {
 			warns = append(warns, turnWarning(what, s, b, angle, allow, basePath, where, cal, mountYaw, ot))
 		}
+	} else if absolute && f.fitted {
+		if w := unseenTurnWarning(s, b, allow, basePath, where, cal, mountYaw, ot); w != "" {
+			warns = append(warns, w)
+		}
 	}
 	d := (ns - nb) / nb
 	allowMag := fieldScaleAllow + fieldMagPerKm*km/nb
