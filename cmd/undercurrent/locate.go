@@ -719,6 +719,10 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			if w := coilSteadyWarning(path, s); w != "" {
 				sv.alerts = append(sv.alerts, w)
 			}
+		} else if o.freq > 0 {
+			if w := coilLikeWarning(path, s); w != "" {
+				sv.warnings = append(sv.warnings, w) // coillike.go
+			}
 		}
 		if s.X == nil || s.Y == nil || s.Z == nil {
 			if isIAGAFile(path) {
