@@ -316,10 +316,12 @@ func phasorFinding(u []*Placed, t []float64, ia, ib, lo, hi int, ramp, rampSigma
 	// The location and width of the transition: the spread of the sizes
 	// over the grid points within the scale of the minimum.
 	var mLo, mHi, aLo, aHi = mag, mag, 0.0, 0.0
+	xLo, xHi := fb.xf, fb.xf
 	for _, f := range fits {
 		if f.chi2 > fb.chi2+scale {
 			continue
 		}
+		xLo, xHi = math.Min(xLo, f.xf), math.Max(xHi, f.xf)
 		l := f.c[0] - f.c[1]
 		m := cmplx.Abs(l)
 		mLo, mHi = math.Min(mLo, m), math.Max(mHi, m)
@@ -359,6 +361,14 @@ func phasorFinding(u []*Placed, t []float64, ia, ib, lo, hi int, ramp, rampSigma
 	if ib-ia > 1 {
 		msg += fmt.Sprintf("; most of the change between %s and %s", label(u[big]), label(u[big+1]))
 	}
+	// The place of the change: the transition's location, to the spread
+	// of the locations the fit allows (one grid step at least), when that
+	// is under a quarter of the bracket.
+	atSigma := math.Max((xHi-xLo)/2, (xb-xa)/float64(gridX-1))
+	resolved := atSigma < 0.25*(xb-xa)
+	if resolved {
+		msg += fmt.Sprintf("; most likely at chainage %s m", pm(fb.xf, atSigma))
+	}
 	msg += fmt.Sprintf("; levels fitted with the transition from %d and %d sound stations", fb.nBefore, fb.nAfter)
 	if ramp != 0 {
 		what := fmt.Sprintf("%s° per metre of chainage", strconv.FormatFloat(ramp, 'g', 2, 64))
@@ -386,6 +396,10 @@ func phasorFinding(u []*Placed, t []float64, ia, ib, lo, hi int, ramp, rampSigma
 			{Name: "phase after", Value: phD, Sigma: sD / ampD / rad, Unit: "deg"},
 			{Name: "phase turn", Value: turn, Sigma: turnSigma, Unit: "deg"},
 		},
+	}
+	if resolved {
+		f.Position = pointAt(u[ia:ib+1], fb.xf)
+		f.Values = append(f.Values, Value{Name: "location (chainage)", Value: fb.xf, Sigma: atSigma, Unit: "m"})
 	}
 	for k := ia; k <= ib; k++ {
 		f.Keys = append(f.Keys, u[k].Key)
