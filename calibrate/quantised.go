@@ -38,8 +38,9 @@ func quantumWarning(tq *ingest.TimeQuantum, freq float64) string {
 // RetimeSamples returns s with its times rebuilt on the steady sampling
 // its quantised stamps fit (ingest.RetimeQuantised; a shallow copy, s
 // untouched) and the warning to give, for demodulation at freq Hz. It
-// returns s itself and "" when the stamps are not quantised, and s itself
-// with a warning when they look quantised but cannot be rebuilt.
+// returns s itself with a warning when they look quantised but cannot be
+// rebuilt, and s itself and "" when they are not quantised (see
+// RetimeJittered for stamps scattered about a steady clock).
 func RetimeSamples(s *ingest.Samples, freq float64) (*ingest.Samples, string) {
 	t, tq := ingest.RetimeQuantised(s.Time, s.Group)
 	if tq == nil {

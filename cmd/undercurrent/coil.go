@@ -624,6 +624,18 @@ const coilSteadyRatio = 5
 // variation about it (the median distance from the columns' medians), as
 // a magnetometer log given as a coil's does; "" otherwise.
 func coilSteadyWarning(path string, s *ingest.Samples) string {
+	steady, rms, ok := steadyPart(s)
+	if !ok || !(steady > coilSteadyRatio*rms) {
+		return ""
+	}
+	return fmt.Sprintf("%s: the field columns hold a steady %.4g V (their medians) against a variation of %.3g V about it: a coil's output has no steady part (a coil senses only a changing field), so this looks like a magnetometer's log, whose field is not in volts; if it is, leave out --coil and --coil-response (an amplifier's offset this large is possible but unusual)",
+		path, steady, rms)
+}
+
+// steadyPart returns the magnitude of the field columns' medians (their
+// steady part) and their variation about it (the median distance from
+// the medians); false when a column holds no number.
+func steadyPart(s *ingest.Samples) (steady, variation float64, ok bool) {
 	var med [3]float64
 	cols := [3][]float64{s.Bx, s.By, s.Bz}
 	for k, col := range cols {
@@ -634,7 +646,7 @@ func coilSteadyWarning(path string, s *ingest.Samples) string {
 			}
 		}
 		if len(v) == 0 {
-			return ""
+			return 0, 0, false
 		}
 		sort.Float64s(v)
 		med[k] = v[len(v)/2]
@@ -650,15 +662,9 @@ func coilSteadyWarning(path string, s *ingest.Samples) string {
 			dist = append(dist, d)
 		}
 	}
-	steady := math.Sqrt(med[0]*med[0] + med[1]*med[1] + med[2]*med[2])
 	if len(dist) == 0 {
-		return ""
+		return 0, 0, false
 	}
 	sort.Float64s(dist)
-	rms := dist[len(dist)/2]
-	if !(steady > coilSteadyRatio*rms) {
-		return ""
-	}
-	return fmt.Sprintf("%s: the field columns hold a steady %.4g V (their medians) against a variation of %.3g V about it: a coil's output has no steady part (a coil senses only a changing field), so this looks like a magnetometer's log, whose field is not in volts; if it is, leave out --coil and --coil-response (an amplifier's offset this large is possible but unusual)",
-		path, steady, rms)
+	return math.Sqrt(med[0]*med[0] + med[1]*med[1] + med[2]*med[2]), dist[len(dist)/2], true
 }

@@ -788,3 +788,26 @@ func TestLocateCoilOppositeCores(t *testing.T) {
 		}
 	}
 }
+
+// TestLocateCoilLogWithoutCoilWarned: the AC walk's coil log (coilWalk:
+// induction-coil voltages by Faraday's law, simulated) located without
+// --coil or --coil-response must draw a warning that names them. Before,
+// its voltages were fitted as nanotesla and reported sound, with only the
+// generic out-of-band warning naming --unit (review rv14d, finding 3).
+// The magnetometer log of the same walk draws no such warning.
+func TestLocateCoilLogWithoutCoilWarned(t *testing.T) {
+	_, fieldLog, coilLog := coilWalk(t, t.TempDir())
+	said := func(log string) bool {
+		code, out, errOut := cli(t, "locate", "--json", "--freq", "50", "--group-by", "group", log)
+		if code != 0 {
+			t.Fatalf("locate %s: exit %d: %s", log, code, errOut)
+		}
+		return strings.Contains(out+errOut, "If these are coil voltages, give the coil with --coil")
+	}
+	if !said(coilLog) {
+		t.Errorf("a coil's log located as a field: no warning naming --coil")
+	}
+	if said(fieldLog) {
+		t.Errorf("a magnetometer's log warned about as a coil's")
+	}
+}

@@ -508,6 +508,9 @@ type survey struct {
 	groups   []*group
 	ac       bool
 	warnings []string
+	// jitter is, by group, what jittered stamps cost (jitterphase.go);
+	// nil when the stamps are not jittered.
+	jitter map[string]stampCost
 	// alerts are warnings that the answer may be wrong (a route fitted
 	// as one line, spikes left in); they come first.
 	alerts []string
@@ -721,6 +724,10 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			o.coil.toVolts(s)
 			if w := coilSteadyWarning(path, s); w != "" {
 				sv.alerts = append(sv.alerts, w)
+			}
+		} else if o.freq > 0 {
+			if w := coilLikeWarning(path, s); w != "" {
+				sv.warnings = append(sv.warnings, w) // coillike.go
 			}
 		}
 		if s.X == nil || s.Y == nil || s.Z == nil {
@@ -1520,6 +1527,9 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 	if rs, w := calibrate.RetimeSamples(s, o.freq); rs != s {
 		s = rs
 		sv.warnings = append(sv.warnings, s.Source+": "+w)
+	} else if w == "" {
+		// Stamps scattered about a steady clock (jitterphase.go).
+		stampJitter(o, sv, s)
 	}
 	res, _, warns, hints, err := demodulateAC(o, s) // acchecks.go
 	if err != nil {
@@ -1752,6 +1762,7 @@ feed:
 	if err == nil {
 		dropWalkRamps(sv.groups)
 		widenForBaseNoise(sv, o.workers)
+		mendStampJitter(sv)
 	}
 	return err
 }

@@ -102,6 +102,8 @@ func Build(stations []Station, set *Settings) (*Route, error) {
 	r.Findings = append(r.Findings, walksDiffer(r.Stations, repeatGap(r.Stations))...)
 	r.ModelScatter, r.ScatterWidening = modelScatter(outsideBends(one, set), set)
 	st, notes := steps(one, set, r.ModelScatter, r.ScatterWidening)
+	// AC: changes of phase sized as phasors (phasorstep.go).
+	st = phasorSteps(one, st, set, r.ModelScatter)
 	r.Findings = append(r.Findings, st...)
 	r.Findings = append(r.Findings, ends...)
 	r.Findings = append(r.Findings, cover(r.Stations, set)...)

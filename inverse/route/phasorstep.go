@@ -1,0 +1,431 @@
+package route
+
+import (
+	"fmt"
+	"math"
+	"math/cmplx"
+	"sort"
+	"strconv"
+)
+
+// Phasor steps of an AC route.
+//
+// Kirchhoff's current law holds for phasors: the current that leaves an AC
+// conductor between two stations is the phasor difference of the currents
+// either side, I_up - I_down (both along increasing chainage), whatever its
+// phase. Current leaving through an earth fault or a bond need not be in
+// phase with the line's (an induced pipe current, a fault through a
+// capacitive or inductive path), so the RMS magnitude alone can fall, stay
+// or even rise where current leaves: 30 A at 0° with 10 A at 90° leaving
+// reads 31.62 A at -18.43° beyond, which the magnitude step search read
+// as 1.65 A "joining"; 30 A at 0° turning to 30 A at 30° (15.5 A
+// leaving) was not reported at all (found in review, simulated).
+//
+// phasorSteps looks for changes of phase along the route beyond the
+// stations' phase sigmas and sizes each as the phasor difference of the
+// levels either side. The phases of different stations are comparable only
+// while the frequency demodulated at is the field's: an error of δf Hz
+// turns every phase by 360·δf·t degrees, a ramp in time. The ramp is
+// estimated from the successive differences of phase (their median per
+// second, or per metre of chainage when the stations' times are not known)
+// and taken out; its uncertainty enters the sized step's sigma. A phase
+// that wanders between stations more than their sigmas say (a grid
+// frequency that wanders during the survey) is measured as an excess
+// scatter of the differences (from their median absolute deviation, robust
+// to the steps themselves) and added to every interval's sigma: where it
+// is large the phases between stations are not comparable and no phasor
+// step is reported (the magnitude steps stand alone).
+//
+// A phasor step replaces the magnitude step or change found over the same
+// stretch: its wording gives the current leaving with its angle to the
+// line current. A change of magnitude with the phase unmoved (an in-phase
+// loss, DC) is left to the magnitude search.
+
+// phasorSideStations is the most stations each side whose phasors set a
+// level.
+const phasorSideStations = 4
+
+// phasorAlpha is the route-wide rate of false phase jumps the interval test
+// allows (it sets the threshold by the number of intervals tested).
+const phasorAlpha = 0.001
+
+// phasorSteps returns st (the magnitude step search's findings) with the
+// phasor steps of the AC stations ps (route order, repeats combined) put
+// in place of the magnitude findings over the same stretch. tau is the
+// route's between-station scatter of current, A (scatter.go).
+func phasorSteps(ps []Placed, st []Finding, set *Settings, tau float64) []Finding {
+	var u []*Placed
+	for k := range ps {
+		p := &ps[k]
+		if !p.usable() {
+			continue
+		}
+		if !p.AC || p.PairNet {
+			return st
+		}
+		u = append(u, p)
+	}
+	n := len(u)
+	if n < 6 {
+		return st
+	}
+	// Station times: their start times when all are known, else chainage.
+	t := make([]float64, n)
+	timed := true
+	for _, p := range u {
+		if p.Start.IsZero() {
+			timed = false
+		}
+	}
+	for i, p := range u {
+		if timed {
+			t[i] = p.Start.Sub(u[0].Start).Seconds()
+		} else {
+			t[i] = p.Chainage
+		}
+	}
+	// Successive differences of phase and their ramp.
+	m := n - 1
+	d := make([]float64, m)
+	var rates []float64
+	for i := 0; i < m; i++ {
+		d[i] = wrapDeg(u[i+1].Phase - u[i].Phase)
+		if dt := t[i+1] - t[i]; dt > 0 {
+			rates = append(rates, d[i]/dt)
+		}
+	}
+	if len(rates) < 3 {
+		return st
+	}
+	ramp := phasorMedian(rates)
+	// The ramp's sigma: the spread of the rates (MAD), as for a median.
+	rampSigma := 1.2533 * 1.4826 * phasorMAD(rates, ramp) / math.Sqrt(float64(len(rates)))
+	e := make([]float64, m)
+	v := make([]float64, m) // the interval's variance from the stations' sigmas
+	for i := 0; i < m; i++ {
+		e[i] = wrapDeg(d[i] - ramp*(t[i+1]-t[i]))
+		v[i] = u[i].PhaseSigma*u[i].PhaseSigma + u[i+1].PhaseSigma*u[i+1].PhaseSigma
+	}
+	spread := 1.4826 * phasorMAD(e, phasorMedian(e))
+	excess := math.Sqrt(math.Max(0, spread*spread-phasorMedian(v)))
+	// A phase test at a route-wide false rate of phasorAlpha, and never
+	// below StepK.
+	kz := math.Max(set.stepK(), math.Sqrt2*math.Erfinv(1-phasorAlpha/float64(m)))
+	jump := make([]bool, m)
+	for i := 0; i < m; i++ {
+		s := math.Sqrt(v[i] + excess*excess)
+		jump[i] = s > 0 && math.Abs(e[i]) > kz*s
+	}
+	var out []Finding
+	drop := make([]bool, len(st))
+	for i := 0; i < m; {
+		if !jump[i] {
+			i++
+			continue
+		}
+		j := i
+		for j+1 < m && jump[j+1] {
+			j++
+		}
+		// Stations ia..ib bracket the run of jumps i..j.
+		ia, ib := i, j+1
+		// The levels are not taken across another run.
+		lo := 0
+		for k := i - 1; k >= 0; k-- {
+			if jump[k] {
+				lo = k + 1
+				break
+			}
+		}
+		hi := n - 1
+		for k := j + 2; k < m; k++ {
+			if jump[k] {
+				hi = k
+				break
+			}
+		}
+		if f, ok := phasorFinding(u, t, ia, ib, lo, hi, ramp, rampSigma, excess, tau, set); ok {
+			for k := range st {
+				g := &st[k]
+				if (g.Kind == KindCurrentStep || g.Kind == KindCurrentChange) && g.From < f.To+1e-6 && g.To > f.From-1e-6 {
+					drop[k] = true
+				}
+			}
+			out = append(out, f)
+		}
+		i = j + 1
+	}
+	if len(out) == 0 {
+		return st
+	}
+	var kept []Finding
+	for k := range st {
+		if !drop[k] {
+			kept = append(kept, st[k])
+		}
+	}
+	return append(kept, out...)
+}
+
+// phasorFit is the transition model fitted to the phasors of a run's
+// stations and their neighbours: P(x) = D + (U - D) f(x_f - x; H) +
+// g (x - x_f), f the share of a semi-infinite line (plateau.go), U and D
+// the levels either side (complex, A) and g a shared complex trend.
+type phasorFit struct {
+	xf, h   float64
+	c       [3]complex128
+	cov     [3][3]float64 // per component (real and imaginary alike)
+	chi2    float64
+	n       int
+	nBefore int
+	nAfter  int
+}
+
+// fitPhasors fits the transition at xf with width h to phasors p at
+// chainages x with per-component variances v; false when singular.
+func fitPhasors(x []float64, p []complex128, v []float64, xf, h float64) (phasorFit, bool) {
+	f := phasorFit{xf: xf, h: h, n: len(x)}
+	lv := lvFit{xf: xf, h: h}
+	var a [3][3]float64
+	var r [3]complex128
+	row := func(i int) [3]float64 {
+		w := lv.frac(x[i])
+		return [3]float64{w, 1 - w, x[i] - xf}
+	}
+	for i := range x {
+		z := row(i)
+		if z[0] > 0.5 {
+			f.nBefore++
+		} else {
+			f.nAfter++
+		}
+		for j := 0; j < 3; j++ {
+			r[j] += complex(z[j]/v[i], 0) * p[i]
+			for k := 0; k < 3; k++ {
+				a[j][k] += z[j] * z[k] / v[i]
+			}
+		}
+	}
+	inv, ok := invert(a, 3)
+	if !ok {
+		return f, false
+	}
+	f.cov = inv
+	for j := 0; j < 3; j++ {
+		for k := 0; k < 3; k++ {
+			f.c[j] += complex(inv[j][k], 0) * r[k]
+		}
+	}
+	for i := range x {
+		z := row(i)
+		m := f.c[0]*complex(z[0], 0) + f.c[1]*complex(z[1], 0) + f.c[2]*complex(z[2], 0)
+		d := p[i] - m
+		f.chi2 += (real(d)*real(d) + imag(d)*imag(d)) / v[i]
+	}
+	return f, true
+}
+
+// phasorFinding sizes the change of phasor between the stations u[ia] and
+// u[ib] (the run of phase jumps) by fitting the transition (phasorFit) to
+// the run's sound stations and up to phasorSideStations sound ones beyond
+// each end (not before lo nor after hi), the phases turned back by the
+// ramp first, and words it; false when the current leaving or the turn of
+// phase is not beyond StepK of its sigma.
+func phasorFinding(u []*Placed, t []float64, ia, ib, lo, hi int, ramp, rampSigma, excess, tau float64, set *Settings) (Finding, bool) {
+	rad := math.Pi / 180
+	tm := (t[ia] + t[ib]) / 2
+	var x, v []float64
+	var p []complex128
+	var tb, ta float64 // mean times of the stations before and after
+	var nb, na int
+	add := func(k int) {
+		q := u[k]
+		if !clean(q, set) {
+			return
+		}
+		x = append(x, q.Chainage)
+		p = append(p, cmplx.Rect(q.Current, (q.Phase-ramp*(t[k]-tm))*rad))
+		ps := q.Current * math.Hypot(q.PhaseSigma, excess/math.Sqrt2) * rad
+		v = append(v, (q.CurrentSigma*q.CurrentSigma+tau*tau+ps*ps)/2)
+		switch {
+		case k <= ia:
+			tb += t[k]
+			nb++
+		case k >= ib:
+			ta += t[k]
+			na++
+		}
+	}
+	for k := max(lo, ia-phasorSideStations); k <= min(hi, ib+phasorSideStations); k++ {
+		add(k)
+	}
+	if nb == 0 || na == 0 || len(x) < 4 {
+		return Finding{}, false
+	}
+	tb /= float64(nb)
+	ta /= float64(na)
+	xa, xb := u[ia].Chainage, u[ib].Chainage
+	sp := typicalSpacing(u)
+	var fits []phasorFit
+	best := -1
+	for gx := 0; gx < gridX; gx++ {
+		xf := xa + (xb-xa)*float64(gx)/float64(gridX-1)
+		for gh := -1; gh < gridH; gh++ {
+			h := 0.0
+			if gh >= 0 {
+				h = sp * minWidth * math.Pow(maxWidth/minWidth, float64(gh)/float64(gridH-1))
+			}
+			f, ok := fitPhasors(x, p, v, xf, h)
+			if !ok || f.nBefore == 0 || f.nAfter == 0 {
+				continue
+			}
+			fits = append(fits, f)
+			if best < 0 || f.chi2 < fits[best].chi2 {
+				best = len(fits) - 1
+			}
+		}
+	}
+	if best < 0 {
+		return Finding{}, false
+	}
+	fb := fits[best]
+	dof := 2*len(x) - 8
+	scale := 1.0
+	if dof > 0 {
+		scale = math.Max(1, fb.chi2/float64(dof))
+	}
+	U, D := fb.c[0], fb.c[1]
+	L := U - D
+	// Per-component covariances of U, D and L, widened by the Birge ratio;
+	// the ramp's error turns D against U.
+	cUU, cDD, cUD := fb.cov[0][0]*scale, fb.cov[1][1]*scale, fb.cov[0][1]*scale
+	turnRamp := rampSigma * (ta - tb) * rad * cmplx.Abs(D)
+	cDD += turnRamp * turnRamp
+	cLL := cUU + cDD - 2*cUD
+	cLU := cUU - cUD
+	aL, aU, aD := cmplx.Abs(L), cmplx.Abs(U), cmplx.Abs(D)
+	if aL == 0 || aU == 0 || aD == 0 {
+		return Finding{}, false
+	}
+	mag, magSigma := aL, math.Sqrt(cLL)
+	ang := wrapDeg((cmplx.Phase(L) - cmplx.Phase(U)) / rad)
+	dot := func(a, b complex128) float64 { return real(a * cmplx.Conj(b)) }
+	angVar := cLL/(aL*aL) + cUU/(aU*aU) - 2*cLU*dot(L, U)/(aL*aL*aU*aU)
+	turn := wrapDeg((cmplx.Phase(D) - cmplx.Phase(U)) / rad)
+	turnVar := cDD/(aD*aD) + cUU/(aU*aU) - 2*cUD*dot(D, U)/(aD*aD*aU*aU)
+	// The location and width of the transition: the spread of the sizes
+	// over the grid points within the scale of the minimum.
+	var mLo, mHi, aLo, aHi = mag, mag, 0.0, 0.0
+	xLo, xHi := fb.xf, fb.xf
+	for _, f := range fits {
+		if f.chi2 > fb.chi2+scale {
+			continue
+		}
+		xLo, xHi = math.Min(xLo, f.xf), math.Max(xHi, f.xf)
+		l := f.c[0] - f.c[1]
+		m := cmplx.Abs(l)
+		mLo, mHi = math.Min(mLo, m), math.Max(mHi, m)
+		da := wrapDeg((cmplx.Phase(l)-cmplx.Phase(f.c[0]))/rad - ang)
+		aLo, aHi = math.Min(aLo, da), math.Max(aHi, da)
+	}
+	magSigma = math.Max(magSigma, (mHi-mLo)/2)
+	angSigma := math.Max(math.Sqrt(math.Max(angVar, 0))/rad, (aHi-aLo)/2)
+	turnSigma := math.Sqrt(math.Max(turnVar, 0)) / rad
+	if !(mag > set.stepK()*magSigma) || !(math.Abs(turn) > set.stepK()*turnSigma) {
+		return Finding{}, false
+	}
+	a, b := u[ia], u[ib]
+	// The interval whose phasors differ most holds most of the change.
+	big, bigSize := ia, -1.0
+	for k := ia; k < ib; k++ {
+		p, q := u[k], u[k+1]
+		if s := cmplx.Abs(cmplx.Rect(p.Current, p.Phase*rad) - cmplx.Rect(q.Current, q.Phase*rad)); s > bigSize {
+			big, bigSize = k, s
+		}
+	}
+	ampU, ampD := aU, aD
+	phU, phD := cmplx.Phase(U)/rad, cmplx.Phase(D)/rad
+	sU, sD := math.Sqrt(cUU), math.Sqrt(cDD)
+	level := math.Max(ampU, ampD)
+	kind, severity := KindCurrentStep, SeverityWarning
+	head := "current leaves the conductor"
+	if set.trendWindow() > 0 && mag < set.minStep()*level {
+		kind, severity = KindCurrentChange, SeverityInfo
+		head = fmt.Sprintf("a change of current of %s%% (under the %s%% taken as a step: more likely the model's error than current leaving or joining)",
+			strconv.FormatFloat(100*mag/level, 'f', 2, 64), strconv.FormatFloat(100*set.minStep(), 'g', 3, 64))
+	}
+	msg := fmt.Sprintf("%s between %s (chainage %.1f m) and %s (%.1f m): %s A at %s° to the line current, the phasor difference of the levels either side (%s A ∠%s° and %s A ∠%s°): the phase turns by %s° where the RMS current changes by %s A, so the RMS currents alone do not measure it; if it is fed from the start of the route (if fed from the far end, as much joins it at that angle)",
+		head, label(a), a.Chainage, label(b), b.Chainage, pm(mag, magSigma), pm(ang, angSigma),
+		pm(ampU, sU), pm(phU, sU/ampU/rad), pm(ampD, sD), pm(phD, sD/ampD/rad),
+		pm(turn, turnSigma), pm(ampD-ampU, math.Sqrt(cUU+cDD)))
+	if ib-ia > 1 {
+		msg += fmt.Sprintf("; most of the change between %s and %s", label(u[big]), label(u[big+1]))
+	}
+	// The place of the change: the transition's location, to the spread
+	// of the locations the fit allows (one grid step at least), when that
+	// is under a quarter of the bracket.
+	atSigma := math.Max((xHi-xLo)/2, (xb-xa)/float64(gridX-1))
+	resolved := atSigma < 0.25*(xb-xa)
+	if resolved {
+		msg += fmt.Sprintf("; most likely at chainage %s m", pm(fb.xf, atSigma))
+	}
+	msg += fmt.Sprintf("; levels fitted with the transition from %d and %d sound stations", fb.nBefore, fb.nAfter)
+	if ramp != 0 {
+		what := fmt.Sprintf("%s° per metre of chainage", strconv.FormatFloat(ramp, 'g', 2, 64))
+		if !u[0].Start.IsZero() {
+			what = fmt.Sprintf("%s° per second, as a frequency %s Hz off the one demodulated at gives", strconv.FormatFloat(ramp, 'g', 2, 64), strconv.FormatFloat(ramp/360, 'g', 2, 64))
+		}
+		msg += fmt.Sprintf(", the phases turned back first by the phase ramp along the route (%s)", what)
+	}
+	if excess > 0 {
+		msg += fmt.Sprintf("; the phases of neighbouring stations differ by %s° more than their sigmas say, which the sigmas here include", SigmaText(excess))
+	}
+	f := Finding{
+		Kind:     kind,
+		Severity: severity,
+		From:     a.Chainage,
+		To:       b.Chainage,
+		Position: legPoint(u[big], u[big+1], 0.5),
+		Message:  msg,
+		Values: []Value{
+			{Name: "current leaving", Value: mag, Sigma: magSigma, Unit: "A"},
+			{Name: "angle to line current", Value: ang, Sigma: angSigma, Unit: "deg"},
+			{Name: "current before", Value: ampU, Sigma: sU, Unit: "A"},
+			{Name: "phase before", Value: phU, Sigma: sU / ampU / rad, Unit: "deg"},
+			{Name: "current after", Value: ampD, Sigma: sD, Unit: "A"},
+			{Name: "phase after", Value: phD, Sigma: sD / ampD / rad, Unit: "deg"},
+			{Name: "phase turn", Value: turn, Sigma: turnSigma, Unit: "deg"},
+		},
+	}
+	if resolved {
+		f.Position = pointAt(u[ia:ib+1], fb.xf)
+		f.Values = append(f.Values, Value{Name: "location (chainage)", Value: fb.xf, Sigma: atSigma, Unit: "m"})
+	}
+	for k := ia; k <= ib; k++ {
+		f.Keys = append(f.Keys, u[k].Key)
+	}
+	return f, true
+}
+
+// phasorMedian returns the median of xs (not modified); 0 for none.
+func phasorMedian(xs []float64) float64 {
+	if len(xs) == 0 {
+		return 0
+	}
+	s := append([]float64(nil), xs...)
+	sort.Float64s(s)
+	h := len(s) / 2
+	if len(s)%2 == 1 {
+		return s[h]
+	}
+	return (s[h-1] + s[h]) / 2
+}
+
+// phasorMAD is the median absolute deviation of xs about c.
+func phasorMAD(xs []float64, c float64) float64 {
+	a := make([]float64, len(xs))
+	for i, x := range xs {
+		a[i] = math.Abs(x - c)
+	}
+	return phasorMedian(a)
+}
