@@ -53,7 +53,7 @@ func (d *Document) addLoneCover(fits []Fit, r *route.Route, rs *route.Settings, 
 			continue
 		}
 		for j, s := range fits[p.Index].Result.Sources {
-			if j == 0 || s.Kind == KindDipole || !sound(&s) || tracked[key{p.Index, j}] || share(p.Index, j) || !s.Identifiable.Azimuth {
+			if j == 0 || s.Kind == KindDipole || !sound(&s) || tracked[key{p.Index, j}] || share(p.Index, j) || !s.Identifiable.Azimuth || lineAboveGround(fits[p.Index].Result, j, rs.SensorHeight) {
 				continue
 			}
 			lones = append(lones, lone{k, trackSource{fit: p.Index, source: j, steep: true, linePoint: s.Point, lineDir: s.Dir, lineDepth: s.Depth, azSigma: s.AzimuthSigma}})
@@ -86,6 +86,11 @@ func (d *Document) addLoneCover(fits []Fit, r *route.Route, rs *route.Settings, 
 		}
 		for j, s := range fits[p.Index].Result.Sources {
 			if j == 0 || s.Kind == KindDipole || !sound(&s) || tracked[key{p.Index, j}] || share(p.Index, j) {
+				continue
+			}
+			if lineAboveGround(fits[p.Index].Result, j, rs.SensorHeight) {
+				// No buried conductor: the group's poor fit says so
+				// (furtherAboveGround), and no cover is checked.
 				continue
 			}
 			l := route.Line{Point: s.Point, Dir: s.Dir, Current: s.Current, CurrentSigma: s.CurrentSigma, Depth: s.Depth, DepthSigma: s.DepthSigma, AzimuthSigma: s.AzimuthSigma, InLineWith: inLine(k, p.Index, j)}

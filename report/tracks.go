@@ -405,7 +405,11 @@ func associateRepeats(groups [][]trackSource, minStations int, gap float64) [][]
 // line paired with each group's strongest is part of conductor 1 and is
 // not offered. A go-and-return pair beside conductor 1 is offered as one
 // source (trackSource.pair), and its lines are not.
-func trackCandidates(fits []Fit, r *route.Route, pairRoute, ac bool) [][]trackSource {
+//
+// A line over 3 sigma above the ground (lineAboveGround, the ground known
+// from sensorHeight or the fits' reference level) is no buried conductor
+// and is not offered.
+func trackCandidates(fits []Fit, r *route.Route, pairRoute, ac bool, sensorHeight float64) [][]trackSource {
 	out := make([][]trackSource, len(r.Stations))
 	for k := range r.Stations {
 		p := &r.Stations[k]
@@ -449,7 +453,7 @@ func trackCandidates(fits []Fit, r *route.Route, pairRoute, ac bool) [][]trackSo
 			if s.Kind == KindDipole || j+1 == partner || inPair[j+1] {
 				continue
 			}
-			if !sound(&s) {
+			if !sound(&s) || lineAboveGround(res, j+1, sensorHeight) {
 				continue
 			}
 			off, depth := crossOffset(p.Point, u, right, s)
@@ -664,7 +668,7 @@ func buildTracks(fits []Fit, r *route.Route, rs *route.Settings, minStations int
 	if minStations < 1 {
 		return nil, nil
 	}
-	tracks := associateRepeats(trackCandidates(fits, r, pairRoute, ac), minStations, r.RepeatGap())
+	tracks := associateRepeats(trackCandidates(fits, r, pairRoute, ac, rs.SensorHeight), minStations, r.RepeatGap())
 	out := make([]builtTrack, 0, len(tracks))
 	for i, members := range tracks {
 		n := i + 2
