@@ -290,8 +290,9 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 				groundAtLines(&fits[i])
 			}
 		}
-		// Conductor 1 by position where the currents do not pick it
-		// (lead.go).
+		// Conductor 1 by continuity where a stronger line crosses it,
+		// then by position where the currents do not pick it (lead.go).
+		leadByContinuity(fits, ac)
 		leadByPosition(fits, ac)
 		// The strongest line's partner core, the same along the route
 		// (partner.go).
