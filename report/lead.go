@@ -188,14 +188,18 @@ func leadByPosition(fits []Fit, ac bool) {
 // it from the neighbouring traverses, before current size: where the
 // strongest line of a group runs over crossAngle degrees in plan from the
 // direction the neighbours' conductor 1 agrees on (continuityNeighbours),
-// and a further line runs within crossAngle of it at every one of them,
-// lies near the nearest one's line carried on (pointToLine within
-// continuityReach) and carries a current of that conductor's level
+// or carries over continuityLevel times their median current (a -10 A
+// line of a crossing pair fitted near the route's direction beside a
+// 2.2 A pipe), and a further line runs within crossAngle of it at every
+// one of them, lies near one of their lines carried on (pointToLine
+// within continuityReach) and carries a current of that conductor's level
 // (within a factor continuityLevel of their median), that line becomes
 // the first. The strongest stays a further line, reported as one (a
-// crossing service: the tracks and the lone-line findings); a
-// go-and-return pair it belongs to keeps its pair (Result.Pairs, their
-// indices carried over).
+// crossing service: the tracks and the lone-line findings); an
+// unresolved go-and-return pair it belongs to keeps its pair
+// (Result.Pairs, their indices carried over), and a resolved one
+// (Result.Opposed, which inverse forms about the strongest line) is kept
+// apart (Fit.crossPairs) for the lone-line findings to name.
 
 // continuityNeighbours is how many of the nearest groups (by the readings'
 // centres) are asked for conductor 1's direction; at least two of them
@@ -226,9 +230,10 @@ func planAgree(a, b [2]float64) bool {
 // its own copy. Run before leadByPosition.
 func leadByContinuity(fits []Fit, ac bool) {
 	type lead struct {
-		ok  bool
-		dir [2]float64
-		cur float64
+		ok          bool
+		dir         [2]float64
+		cur         float64
+		point, dir3 [3]float64
 	}
 	n := len(fits)
 	if n < 3 {
@@ -236,106 +241,139 @@ func leadByContinuity(fits []Fit, ac bool) {
 	}
 	leads := make([]lead, n)
 	cent := make([][3]float64, n)
-	for i := range fits {
+	leadOf := func(i int) lead {
 		f := &fits[i]
-		if f.Problem == nil || len(f.Problem.Points) == 0 {
-			continue
-		}
-		cent[i] = centroid(f.Problem.Points)
 		r := f.Result
 		if r == nil || len(r.Sources) == 0 || f.Dipole || !(r.Status.Converged() || r.Status == inverse.Stalled) {
-			continue
+			return lead{}
 		}
 		s := &r.Sources[0]
 		if s.Kind == KindDipole || !sound(s) || NoCurrent(s, ac) || !s.Identifiable.Azimuth {
-			continue
+			return lead{}
 		}
-		if v, ok := planUnit(s.Dir); ok {
-			leads[i] = lead{ok: true, dir: v, cur: math.Abs(s.Current)}
+		v, ok := planUnit(s.Dir)
+		if !ok {
+			return lead{}
+		}
+		return lead{ok: true, dir: v, cur: math.Abs(s.Current), point: s.Point, dir3: s.Dir}
+	}
+	for i := range fits {
+		if p := fits[i].Problem; p != nil && len(p.Points) > 0 {
+			cent[i] = centroid(p.Points)
+			leads[i] = leadOf(i)
 		}
 	}
 	planDist := func(a, b int) float64 {
 		return math.Hypot(cent[a][0]-cent[b][0], cent[a][1]-cent[b][1])
 	}
-	for i := range fits {
-		f := &fits[i]
-		res := f.Result
-		if !leads[i].ok || f.object != nil || f.sumSplit || len(res.Sources) < 2 {
-			continue
-		}
-		// The nearest groups with a conductor 1 to go by.
-		var nb []int
-		for j := range fits {
-			if j != i && leads[j].ok {
-				nb = append(nb, j)
+	// A group settled here guides its neighbours in the next pass; a few
+	// passes settle a crossing seen at two traverses side by side.
+	for pass := 0; pass < 3; pass++ {
+		changed := false
+		for i := range fits {
+			f := &fits[i]
+			res := f.Result
+			if !leads[i].ok || f.object != nil || f.sumSplit || len(res.Sources) < 2 {
+				continue
 			}
-		}
-		sort.SliceStable(nb, func(a, b int) bool { return planDist(i, nb[a]) < planDist(i, nb[b]) })
-		if len(nb) > continuityNeighbours {
-			nb = nb[:continuityNeighbours]
-		}
-		// The direction most of them agree on: the agreeing set of the
-		// nearest neighbour that has the most others with it.
-		var agree []int
-		for _, a := range nb {
-			var with []int
-			for _, b := range nb {
-				if planAgree(leads[a].dir, leads[b].dir) {
-					with = append(with, b)
+			// The nearest groups with a conductor 1 to go by.
+			var nb []int
+			for j := range fits {
+				if j != i && leads[j].ok {
+					nb = append(nb, j)
 				}
 			}
-			if len(with) > len(agree) {
-				agree = with
+			sort.SliceStable(nb, func(a, b int) bool { return planDist(i, nb[a]) < planDist(i, nb[b]) })
+			if len(nb) > continuityNeighbours {
+				nb = nb[:continuityNeighbours]
 			}
-		}
-		if len(agree) < 2 {
-			continue
-		}
-		off := true
-		for _, a := range agree {
-			if planAgree(leads[i].dir, leads[a].dir) {
-				off = false
+			// The direction most of them agree on: the agreeing set of
+			// the nearest neighbour that has the most others with it.
+			var agree []int
+			for _, a := range nb {
+				var with []int
+				for _, b := range nb {
+					if planAgree(leads[a].dir, leads[b].dir) {
+						with = append(with, b)
+					}
+				}
+				if len(with) > len(agree) {
+					agree = with
+				}
 			}
-		}
-		if !off {
-			continue
-		}
-		var levels []float64
-		for _, a := range agree {
-			levels = append(levels, leads[a].cur)
-		}
-		level := median(levels)
-		near := agree[0] // nb is sorted nearest first
-		ref := &fits[near].Result.Sources[0]
-		reach := math.Max(continuityReach, planDist(i, near)/2)
-		pick, best := -1, math.Inf(1)
-		for j := 1; j < len(res.Sources); j++ {
-			s := &res.Sources[j]
-			if s.Kind == KindDipole || !sound(s) || NoCurrent(s, ac) || !s.Identifiable.Azimuth {
+			if len(agree) < 2 {
 				continue
 			}
-			v, ok := planUnit(s.Dir)
-			if !ok {
-				continue
-			}
-			along := true
+			var levels []float64
 			for _, a := range agree {
-				if !planAgree(v, leads[a].dir) {
-					along = false
+				levels = append(levels, leads[a].cur)
+			}
+			level := median(levels)
+			// The strongest line breaks the continuity when it runs off
+			// the agreed direction or carries far more than its level.
+			off := true
+			for _, a := range agree {
+				if planAgree(leads[i].dir, leads[a].dir) {
+					off = false
 				}
 			}
-			c := math.Abs(s.Current)
-			if !along || !(c*continuityLevel >= level && c <= continuityLevel*level) {
+			if !off && leads[i].cur <= continuityLevel*level {
 				continue
 			}
-			if d := pointToLine(s.Point, ref.Point, ref.Dir); d <= reach && d < best {
-				pick, best = j, d
+			pick, best := -1, math.Inf(1)
+			for j := 1; j < len(res.Sources); j++ {
+				s := &res.Sources[j]
+				if s.Kind == KindDipole || !sound(s) || NoCurrent(s, ac) || !s.Identifiable.Azimuth {
+					continue
+				}
+				v, ok := planUnit(s.Dir)
+				if !ok {
+					continue
+				}
+				along := true
+				for _, a := range agree {
+					if !planAgree(v, leads[a].dir) {
+						along = false
+					}
+				}
+				c := math.Abs(s.Current)
+				if !along || !(c*continuityLevel >= level && c <= continuityLevel*level) {
+					continue
+				}
+				// Near one of their lines carried on.
+				for _, a := range agree {
+					reach := math.Max(continuityReach, planDist(i, a)/2)
+					if d := pointToLine(s.Point, leads[a].point, leads[a].dir3); d <= reach && d < best {
+						pick, best = j, d
+					}
+				}
 			}
+			if pick < 0 {
+				continue
+			}
+			f.Result = withLead(res, pick)
+			// The crossing's own partner core, when the fit resolved one:
+			// the lone-line findings name the pair (addLoneCover).
+			f.crossPairs = nil
+			for _, q := range res.Opposed {
+				a, b := q.Lines[0], q.Lines[1]
+				if a == pick || b == pick || (a != 0 && b != 0) {
+					continue
+				}
+				if a == 0 {
+					a = pick
+				} else {
+					b = pick
+				}
+				q.Lines = [2]int{a, b}
+				f.crossPairs = append(f.crossPairs, crossPair{q: q, cur: [2]float64{f.Result.Sources[a].Current, f.Result.Sources[b].Current}})
+			}
+			leads[i] = leadOf(i)
+			changed = true
 		}
-		if pick < 0 {
-			continue
+		if !changed {
+			break
 		}
-		f.Result = withLead(res, pick)
 	}
 }
 

@@ -1,6 +1,9 @@
 package report
 
 import (
+	"fmt"
+	"strings"
+
 	"undercurrent/inverse/route"
 )
 
@@ -97,6 +100,14 @@ func (d *Document) addLoneCover(fits []Fit, r *route.Route, rs *route.Settings, 
 			if f, ok := route.LoneCover(p, l, rs, len(r.Stations) == 1); ok {
 				nf := findingOf(f)
 				nf.Lone = true
+				if note := crossPairNote(&fits[p.Index], j); note != "" {
+					// Before the cover, which is the line's own.
+					if at := strings.Index(nf.Message, "; its cover"); at >= 0 {
+						nf.Message = nf.Message[:at] + note + nf.Message[at:]
+					} else {
+						nf.Message += note
+					}
+				}
 				d.Findings = append(d.Findings, nf)
 				added = true
 			}
@@ -105,4 +116,34 @@ func (d *Document) addLoneCover(fits []Fit, r *route.Route, rs *route.Settings, 
 	if added {
 		SortFindings(d.Findings)
 	}
+}
+
+// crossPairNote names the go-and-return pair that line j of fit f belongs
+// to when it is a crossing line leadByContinuity moved from first place
+// and the fit resolved its partner core (Fit.crossPairs): "" otherwise.
+// In review a +15/-14.6 A feed pair crossing a pipe was reported as two
+// unrelated further lines.
+func crossPairNote(f *Fit, j int) string {
+	for _, c := range f.crossPairs {
+		q := &c.q
+		a, b := q.Lines[0], q.Lines[1]
+		if a < 0 || b < 0 || a >= len(f.Result.Sources) || b >= len(f.Result.Sources) ||
+			f.Result.Sources[a].Current != c.cur[0] || f.Result.Sources[b].Current != c.cur[1] {
+			continue // a later Result (a refit) without the pair
+		}
+		k := -1
+		switch j {
+		case a:
+			k = b
+		case b:
+			k = a
+		}
+		if k < 0 {
+			continue
+		}
+		o := &f.Result.Sources[k]
+		return fmt.Sprintf(", with the line of %s A beside it, %s m apart, it is one of a go-and-return pair crossing the route, net current %s A",
+			PlusMinus(o.Current, o.CurrentSigma), PlusMinus(q.Spacing, q.SpacingSigma), PlusMinus(q.NetCurrent, q.NetCurrentSigma))
+	}
+	return ""
 }
