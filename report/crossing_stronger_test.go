@@ -110,7 +110,7 @@ current_a = 15.0
 // disturbance" of 11.8 A on the feeder with a 61-degree bend either side.
 func TestCrossingStrongerThanConductor(t *testing.T) {
 	if testing.Short() {
-		t.Skip("fits 76 traverses")
+		t.Skip("fits 117 traverses")
 	}
 	pair, err := simulate.Parse([]byte(crossPairScenario), "larkspur-cross-pair")
 	if err != nil {
@@ -131,6 +131,13 @@ func TestCrossingStrongerThanConductor(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
+	// Traverses 5 m apart: three successive fits hold the pair's cores,
+	// followed as a further conductor, a go-and-return pair.
+	close5, err := simulate.Parse([]byte(strings.NewReplacer("sample_spacing_m = 0.1", "sample_spacing_m = 0.02", "length_m = 12.0", "length_m = 16.0",
+		"count = 21", "count = 41", "spacing_m = 10.0", "spacing_m = 5.0").Replace(crossPairScenario)), "larkspur-cross-pair-5m")
+	if err != nil {
+		t.Fatal(err)
+	}
 	service, err := simulate.Parse([]byte(strongServiceScenario), "crossing-service-strong")
 	if err != nil {
 		t.Fatal(err)
@@ -148,6 +155,7 @@ func TestCrossingStrongerThanConductor(t *testing.T) {
 		{"cross-pair", pair, 2.2, 1.3, [2]float64{125, 0}, 0.9, 0.6, false},
 		{"cross-pair-dense", dense, 2.2, 1.3, [2]float64{125, 0}, 0.9, 0.6, false},
 		{"cross-pair-resolved", resolved, 2.2, 1.3, [2]float64{125, 0}, 0.9, 0.6, true},
+		{"cross-pair-5m", close5, 2.2, 1.3, [2]float64{125, 0}, 0.9, 0.6, true},
 		{"strong-service", service, 3, 1.2, [2]float64{30, 0}, 0.9, 0.6, false},
 	}
 	for _, c := range cases {
@@ -191,12 +199,18 @@ func TestCrossingStrongerThanConductor(t *testing.T) {
 				}
 			}
 			// The crossing reported as a further line under the minimum.
+			// The crossing reported as a further line under the minimum
+			// (seen at too few traverses to follow), or followed as a
+			// further conductor, with its cover under the minimum.
 			found, named := false, false
 			for _, f := range d.Findings {
-				if f.Lone && f.Kind == "shallow-cover" && slices.ContainsFunc(f.Groups, func(k string) bool { return near[k] }) && strings.Contains(f.Message, "not followed along the route") {
-					found = true
-					named = named || strings.Contains(f.Message, "one of a go-and-return pair crossing the route")
+				lone := f.Lone && f.Kind == "shallow-cover" && slices.ContainsFunc(f.Groups, func(k string) bool { return near[k] }) && strings.Contains(f.Message, "not followed along the route")
+				track := f.Conductor > 0 && f.Kind == "shallow-cover"
+				if !lone && !track {
+					continue
 				}
+				found = true
+				named = named || strings.Contains(f.Message, "one of a go-and-return pair crossing the route") || strings.Contains(f.Message, "a go-and-return pair (its current is the pair's net current")
 			}
 			if c.pairNamed && !named {
 				t.Errorf("the crossing pair's cores, resolved, are not named as a pair")

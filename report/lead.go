@@ -203,8 +203,12 @@ func leadByPosition(fits []Fit, ac bool) {
 
 // continuityNeighbours is how many of the nearest groups (by the readings'
 // centres) are asked for conductor 1's direction; at least two of them
-// must agree within crossAngle.
-const continuityNeighbours = 4
+// must agree within crossAngle, and more of them than on any other
+// direction. Six outvote a crossing captured at up to two neighbouring
+// traverses (a crossing feed pair seen at three successive traverses 5 m
+// apart: with four, the two captured neighbours tied with the conductor's
+// two, and the nearest set, the crossing's, won).
+const continuityNeighbours = 6
 
 // continuityLevel bounds the ratio of a continuing line's |current| to the
 // median of the agreeing neighbours' conductor 1: a tee or a fault between
@@ -288,8 +292,10 @@ func leadByContinuity(fits []Fit, ac bool) {
 				nb = nb[:continuityNeighbours]
 			}
 			// The direction most of them agree on: the agreeing set of
-			// the nearest neighbour that has the most others with it.
+			// the nearest neighbour that has the most others with it;
+			// none when another direction has as many.
 			var agree []int
+			tied := false
 			for _, a := range nb {
 				var with []int
 				for _, b := range nb {
@@ -297,11 +303,14 @@ func leadByContinuity(fits []Fit, ac bool) {
 						with = append(with, b)
 					}
 				}
-				if len(with) > len(agree) {
-					agree = with
+				switch {
+				case len(with) > len(agree):
+					agree, tied = with, false
+				case len(with) == len(agree) && !planAgree(leads[a].dir, leads[agree[0]].dir):
+					tied = true
 				}
 			}
-			if len(agree) < 2 {
+			if len(agree) < 2 || tied {
 				continue
 			}
 			var levels []float64

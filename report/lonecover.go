@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"strings"
 
+	"undercurrent/inverse"
 	"undercurrent/inverse/route"
 )
 
@@ -124,13 +125,9 @@ func (d *Document) addLoneCover(fits []Fit, r *route.Route, rs *route.Settings, 
 // In review a +15/-14.6 A feed pair crossing a pipe was reported as two
 // unrelated further lines.
 func crossPairNote(f *Fit, j int) string {
-	for _, c := range f.crossPairs {
-		q := &c.q
+	for _, pq := range f.validCrossPairs() {
+		q := &pq
 		a, b := q.Lines[0], q.Lines[1]
-		if a < 0 || b < 0 || a >= len(f.Result.Sources) || b >= len(f.Result.Sources) ||
-			f.Result.Sources[a].Current != c.cur[0] || f.Result.Sources[b].Current != c.cur[1] {
-			continue // a later Result (a refit) without the pair
-		}
 		k := -1
 		switch j {
 		case a:
@@ -146,4 +143,19 @@ func crossPairNote(f *Fit, j int) string {
 			PlusMinus(o.Current, o.CurrentSigma), PlusMinus(q.Spacing, q.SpacingSigma), PlusMinus(q.NetCurrent, q.NetCurrentSigma))
 	}
 	return ""
+}
+
+// validCrossPairs are f's crossPairs that its Result still holds (the
+// same currents at their indices; a refit may have replaced the Result).
+func (f *Fit) validCrossPairs() []inverse.PairEstimate {
+	var out []inverse.PairEstimate
+	for _, c := range f.crossPairs {
+		a, b := c.q.Lines[0], c.q.Lines[1]
+		if f.Result == nil || a < 0 || b < 0 || a >= len(f.Result.Sources) || b >= len(f.Result.Sources) ||
+			f.Result.Sources[a].Current != c.cur[0] || f.Result.Sources[b].Current != c.cur[1] {
+			continue
+		}
+		out = append(out, c.q)
+	}
+	return out
 }

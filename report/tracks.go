@@ -3,6 +3,7 @@ package report
 import (
 	"fmt"
 	"math"
+	"slices"
 	"sort"
 
 	"undercurrent/inverse"
@@ -431,8 +432,14 @@ func trackCandidates(fits []Fit, r *route.Route, pairRoute, ac bool, sensorHeigh
 			partner = sw.Lines[1] // summed into the station (sameway.go)
 		}
 		inPair := map[int]bool{}
-		for i := range res.Pairs {
-			q := &res.Pairs[i]
+		// A crossing pair whose cores the fit resolved, moved from first
+		// place (Fit.crossPairs), is offered as one source too, so that
+		// its cores are not linked as lines with other lines (a crossing
+		// pair's core and the pair's field fitted as one line at the next
+		// traverse read as a 16 A "current leaving" a further conductor).
+		pairs := append(slices.Clone(res.Pairs), fits[p.Index].validCrossPairs()...)
+		for i := range pairs {
+			q := &pairs[i]
 			a, b := q.Lines[0], q.Lines[1]
 			if a == 0 || b == 0 || a == partner || b == partner {
 				continue // conductor 1's own pair (circuitOf)
