@@ -193,8 +193,8 @@ func leadByPosition(fits []Fit, ac bool) {
 // 2.2 A pipe), and a further line runs within crossAngle of it at every
 // one of them, lies near one of their lines carried on (pointToLine
 // within continuityReach) and carries a current of that conductor's level
-// (within a factor continuityLevel of their median), that line becomes
-// the first. The strongest stays a further line, reported as one (a
+// (within a factor continuityLevel of their median) the same way, that
+// line becomes the first. The strongest stays a further line, reported as one (a
 // crossing service: the tracks and the lone-line findings); an
 // unresolved go-and-return pair it belongs to keeps its pair
 // (Result.Pairs, their indices carried over), and a resolved one
@@ -236,7 +236,7 @@ func leadByContinuity(fits []Fit, ac bool) {
 	type lead struct {
 		ok          bool
 		dir         [2]float64
-		cur         float64
+		cur, signed float64 // |current|, and the current along dir
 		point, dir3 [3]float64
 	}
 	n := len(fits)
@@ -259,7 +259,7 @@ func leadByContinuity(fits []Fit, ac bool) {
 		if !ok {
 			return lead{}
 		}
-		return lead{ok: true, dir: v, cur: math.Abs(s.Current), point: s.Point, dir3: s.Dir}
+		return lead{ok: true, dir: v, cur: math.Abs(s.Current), signed: s.Current, point: s.Point, dir3: s.Dir}
 	}
 	for i := range fits {
 		if p := fits[i].Problem; p != nil && len(p.Points) > 0 {
@@ -313,11 +313,21 @@ func leadByContinuity(fits []Fit, ac bool) {
 			if len(agree) < 2 || tied {
 				continue
 			}
-			var levels []float64
+			// Their level, and which way their current flows along the
+			// first one's direction.
+			ref := leads[agree[0]].dir
+			along := func(d [2]float64, cur float64) float64 {
+				if d[0]*ref[0]+d[1]*ref[1] < 0 {
+					return -cur
+				}
+				return cur
+			}
+			var levels, ways []float64
 			for _, a := range agree {
 				levels = append(levels, leads[a].cur)
+				ways = append(ways, along(leads[a].dir, leads[a].signed))
 			}
-			level := median(levels)
+			level, way := median(levels), median(ways)
 			// The strongest line breaks the continuity when it runs off
 			// the agreed direction or carries far more than its level.
 			off := true
@@ -339,14 +349,17 @@ func leadByContinuity(fits []Fit, ac bool) {
 				if !ok {
 					continue
 				}
-				along := true
+				runs := true
 				for _, a := range agree {
 					if !planAgree(v, leads[a].dir) {
-						along = false
+						runs = false
 					}
 				}
+				// Of their level, flowing their way (a DC line carrying
+				// current against them is another conductor; AC
+				// currents are RMS, positive).
 				c := math.Abs(s.Current)
-				if !along || !(c*continuityLevel >= level && c <= continuityLevel*level) {
+				if !runs || !(c*continuityLevel >= level && c <= continuityLevel*level) || along(v, s.Current)*way < 0 {
 					continue
 				}
 				// Near one of their lines carried on.
