@@ -194,12 +194,13 @@ func leadByPosition(fits []Fit, ac bool) {
 // one of them, lies near one of their lines carried on (pointToLine
 // within continuityReach) and carries a current of that conductor's level
 // (within a factor continuityLevel of their median) the same way, that
-// line becomes the first. The strongest stays a further line, reported as one (a
-// crossing service: the tracks and the lone-line findings); an
+// line becomes the first. The strongest stays a further line, reported as
+// one (a crossing service: the tracks and the lone-line findings); an
 // unresolved go-and-return pair it belongs to keeps its pair
 // (Result.Pairs, their indices carried over), and a resolved one
 // (Result.Opposed, which inverse forms about the strongest line) is kept
-// apart (Fit.crossPairs) for the lone-line findings to name.
+// apart (Fit.crossPairs): the tracks follow it as one source, a pair, and
+// the lone-line findings name it.
 
 // continuityNeighbours is how many of the nearest groups (by the readings'
 // centres) are asked for conductor 1's direction; at least two of them
@@ -216,7 +217,7 @@ const continuityNeighbours = 6
 const continuityLevel = 4.0
 
 // continuityReach is the distance in space, m, within which a continuing
-// line must pass the nearest agreeing neighbour's conductor 1 carried on,
+// line must pass one of the agreeing neighbours' conductor 1 carried on,
 // or half the plan distance between the two groups' readings when that
 // is more (a route bending by up to crossAngle between them).
 const continuityReach = 2.0
@@ -356,10 +357,10 @@ func leadByContinuity(fits []Fit, ac bool) {
 					}
 				}
 				// Of their level, flowing their way (a DC line carrying
-				// current against them is another conductor; AC
-				// currents are RMS, positive).
+				// current against them is another conductor; an AC
+				// current is an RMS, its sense in the phase, not asked).
 				c := math.Abs(s.Current)
-				if !runs || !(c*continuityLevel >= level && c <= continuityLevel*level) || along(v, s.Current)*way < 0 {
+				if !runs || !(c*continuityLevel >= level && c <= continuityLevel*level) || !ac && along(v, s.Current)*way < 0 {
 					continue
 				}
 				// Near one of their lines carried on.
