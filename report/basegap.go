@@ -35,3 +35,15 @@ func (d *Document) BaseGapOnly(g *Group) bool {
 	}
 	return true
 }
+
+// fitDoubted reports whether the report doubts group g's fit: it carries
+// a Problem (a poor or ambiguous fit, a failed one) other than the
+// base-gap mark alone (BaseGapOnly). A group marked only for a base gap
+// has a sound fit over readings whose base correction needs review; the
+// least-cover headline had taken such a group's Problem as a poor fit,
+// dropping a 10 A service 0.35 m down from the headline and calling
+// conductor 1's least cover there "poor or ambiguous" over a 0.1 nT
+// interpolation error (found in review).
+func (d *Document) fitDoubted(g *Group) bool {
+	return g.Problem != "" && !d.BaseGapOnly(g)
+}

@@ -91,6 +91,18 @@ type Fit struct {
 	// weak are the indices into Result.Sources of the weak lines beside
 	// the pair that its net current takes in (chooseWeak, partner.go).
 	weak []int
+	// crossPairs are the resolved go-and-return pairs (Result.Opposed)
+	// of the crossing line that leadByContinuity moved from first place,
+	// their indices those of the Result it made (lead.go).
+	crossPairs []crossPair
+}
+
+// crossPair is a resolved go-and-return pair of a crossing line
+// (Fit.crossPairs), with its lines' currents, by which a later copy of the
+// Result is known to keep the pair's indices.
+type crossPair struct {
+	q   inverse.PairEstimate
+	cur [2]float64
 }
 
 // BuildSettings tunes Build. A nil *BuildSettings or a zero field takes the
@@ -290,8 +302,9 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 				groundAtLines(&fits[i])
 			}
 		}
-		// Conductor 1 by position where the currents do not pick it
-		// (lead.go).
+		// Conductor 1 by continuity where a stronger line crosses it,
+		// then by position where the currents do not pick it (lead.go).
+		leadByContinuity(fits, ac)
 		leadByPosition(fits, ac)
 		// The strongest line's partner core, the same along the route
 		// (partner.go).

@@ -47,3 +47,22 @@ func furtherAboveGround(res *inverse.Result, sensorHeight float64) string {
 	}
 	return ""
 }
+
+// lineAboveGround reports whether line j of res lies above the ground by
+// more than 3 sigma (aboveGroundProblem): no buried conductor lies there,
+// whatever the fit took it for. Such a further line gets one verdict, the
+// poor fit's (furtherAboveGround, or a failed fit for the strongest): it
+// is not followed as a further conductor (trackCandidates) nor checked for
+// cover (addLoneCover). Before, a line the run called "0.128 ± 0.036 m
+// above the ground given: no buried conductor lies there" was also warned
+// of as "a further line source ... its cover, -0.128 ± 0.062 m, is less
+// than the 0.90 m minimum ...: confirm before digging here", and three
+// such lines of an unlogged sensor tilt were followed as a "conductor 2"
+// whose -0.25 m cover led the least-cover headline (found in review).
+func lineAboveGround(res *inverse.Result, j int, sensorHeight float64) bool {
+	if res == nil || j < 0 || j >= len(res.Sources) || res.Sources[j].Kind == KindDipole {
+		return false
+	}
+	_, fail := aboveGroundProblem(res, &res.Sources[j], sensorHeight)
+	return fail
+}

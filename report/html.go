@@ -744,8 +744,8 @@ func (v *view) summarise() {
 			// when there are any: a bend's poor fit read 1.34 m where the
 			// others reach 1.29 m in the demo (found in review).
 			poor := map[string]bool{}
-			for _, g := range d.Groups {
-				if g.Problem != "" {
+			for i := range d.Groups {
+				if g := &d.Groups[i]; d.fitDoubted(g) {
 					poor[g.Key] = true
 				}
 			}
@@ -1123,6 +1123,10 @@ func LeastCover(d *Document) string {
 	}
 	if l, ok := d.shallowLoneLine(); ok && l.cover < cands[best].cover {
 		line += fmt.Sprintf("; a further line that no conductor follows (seen at too few traverses: a crossing service, for example) lies shallower, under %s m at %s (chainage %.0f m)", pm(l.cover, l.sigma), l.key, l.chainage)
+		if g := d.groupByKey(l.key); g != nil && d.BaseGapOnly(g) {
+			// Its fit is sound; the base correction under it needs review.
+			line += ", a traverse marked for review (a gap in the base record)"
+		}
 	}
 	return line + "."
 }
@@ -1145,8 +1149,9 @@ func (d *Document) shallowLoneLine() (c coverAt, ok bool) {
 		if !g.OK || len(g.Sources) < 2 || !d.groupUsed(g) {
 			continue
 		}
-		if g.Problem != "" {
-			// A fit the report itself doubts (poor, or ambiguous): its
+		if d.fitDoubted(g) {
+			// A fit the report itself doubts (poor, or ambiguous; not one
+			// marked only for a base gap, whose fit is sound): its
 			// further lines may be the fit's way of absorbing what the
 			// model misses. Beside a 3 A loss on a go-and-return pair a
 			// fit 10 times the noise split the field into three weak

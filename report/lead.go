@@ -2,6 +2,7 @@ package report
 
 import (
 	"math"
+	"sort"
 
 	"undercurrent/inverse"
 )
@@ -168,4 +169,258 @@ func leadByPosition(fits []Fit, ac bool) {
 		r.Sources[0], r.Sources[pick] = r.Sources[pick], r.Sources[0]
 		fits[bi].Result = &r
 	}
+}
+
+// Conductor 1 at a crossing.
+//
+// A line crossing the route (a service, a go-and-return feed) whose
+// current is larger than the surveyed conductor's is the strongest line
+// of the fit at its traverse, and leadCandidates offers the others only
+// where the currents tie: the route then took the crossing as conductor
+// 1's station there. In review a +15/-14.6 A feed pair crossing a 2.2 A
+// pipe at 58 degrees gave false "current joining" and "current leaving"
+// warnings of 13-16 A, a shallow-cover warning on conductor 1 at the
+// pair's depth, no word of the crossing, and hid a drum at the next
+// traverse; a 15 A service across a 3 A feeder read as a "local
+// disturbance" on conductor 1.
+//
+// leadByContinuity therefore keeps conductor 1 on the line that continues
+// it from the neighbouring traverses, before current size: where the
+// strongest line of a group runs over crossAngle degrees in plan from the
+// direction the neighbours' conductor 1 agrees on (continuityNeighbours),
+// or carries over continuityLevel times their median current (a -10 A
+// line of a crossing pair fitted near the route's direction beside a
+// 2.2 A pipe), and a further line runs within crossAngle of it at every
+// one of them, lies near one of their lines carried on (pointToLine
+// within continuityReach) and carries a current of that conductor's level
+// (within a factor continuityLevel of their median) the same way, that
+// line becomes the first. The strongest stays a further line, reported as
+// one (a crossing service: the tracks and the lone-line findings); an
+// unresolved go-and-return pair it belongs to keeps its pair
+// (Result.Pairs, their indices carried over), and a resolved one
+// (Result.Opposed, which inverse forms about the strongest line) is kept
+// apart (Fit.crossPairs): the tracks follow it as one source, a pair, and
+// the lone-line findings name it.
+
+// continuityNeighbours is how many of the nearest groups (by the readings'
+// centres) are asked for conductor 1's direction; at least two of them
+// must agree within crossAngle, and more of them than on any other
+// direction. Six outvote a crossing captured at up to two neighbouring
+// traverses (a crossing feed pair seen at three successive traverses 5 m
+// apart: with four, the two captured neighbours tied with the conductor's
+// two, and the nearest set, the crossing's, won).
+const continuityNeighbours = 6
+
+// continuityLevel bounds the ratio of a continuing line's |current| to the
+// median of the agreeing neighbours' conductor 1: a tee or a fault between
+// traverses changes the current, a stray weak line is not the conductor.
+const continuityLevel = 4.0
+
+// continuityReach is the distance in space, m, within which a continuing
+// line must pass one of the agreeing neighbours' conductor 1 carried on,
+// or half the plan distance between the two groups' readings when that
+// is more (a route bending by up to crossAngle between them).
+const continuityReach = 2.0
+
+// planAgree reports whether plan directions a and b (unit, either sense)
+// lie within crossAngle of each other.
+func planAgree(a, b [2]float64) bool {
+	return math.Abs(a[0]*b[0]+a[1]*b[1]) >= math.Cos(crossAngle*math.Pi/180)
+}
+
+// leadByContinuity makes the first line of each fit whose strongest line
+// crosses the route the line that continues conductor 1 from the
+// neighbouring groups (see above), replacing such a fit's Result by a copy
+// with the chosen line first. fits is changed in place: the caller passes
+// its own copy. Run before leadByPosition.
+func leadByContinuity(fits []Fit, ac bool) {
+	type lead struct {
+		ok          bool
+		dir         [2]float64
+		cur, signed float64 // |current|, and the current along dir
+		point, dir3 [3]float64
+	}
+	n := len(fits)
+	if n < 3 {
+		return
+	}
+	leads := make([]lead, n)
+	cent := make([][3]float64, n)
+	leadOf := func(i int) lead {
+		f := &fits[i]
+		r := f.Result
+		if r == nil || len(r.Sources) == 0 || f.Dipole || !(r.Status.Converged() || r.Status == inverse.Stalled) {
+			return lead{}
+		}
+		s := &r.Sources[0]
+		if s.Kind == KindDipole || !sound(s) || NoCurrent(s, ac) || !s.Identifiable.Azimuth {
+			return lead{}
+		}
+		v, ok := planUnit(s.Dir)
+		if !ok {
+			return lead{}
+		}
+		return lead{ok: true, dir: v, cur: math.Abs(s.Current), signed: s.Current, point: s.Point, dir3: s.Dir}
+	}
+	for i := range fits {
+		if p := fits[i].Problem; p != nil && len(p.Points) > 0 {
+			cent[i] = centroid(p.Points)
+			leads[i] = leadOf(i)
+		}
+	}
+	planDist := func(a, b int) float64 {
+		return math.Hypot(cent[a][0]-cent[b][0], cent[a][1]-cent[b][1])
+	}
+	// A group settled here guides its neighbours in the next pass; a few
+	// passes settle a crossing seen at two traverses side by side.
+	for pass := 0; pass < 3; pass++ {
+		changed := false
+		for i := range fits {
+			f := &fits[i]
+			res := f.Result
+			if !leads[i].ok || f.object != nil || f.sumSplit || len(res.Sources) < 2 {
+				continue
+			}
+			// The nearest groups with a conductor 1 to go by.
+			var nb []int
+			for j := range fits {
+				if j != i && leads[j].ok {
+					nb = append(nb, j)
+				}
+			}
+			sort.SliceStable(nb, func(a, b int) bool { return planDist(i, nb[a]) < planDist(i, nb[b]) })
+			if len(nb) > continuityNeighbours {
+				nb = nb[:continuityNeighbours]
+			}
+			// The direction most of them agree on: the agreeing set of
+			// the nearest neighbour that has the most others with it;
+			// none when another direction has as many.
+			var agree []int
+			tied := false
+			for _, a := range nb {
+				var with []int
+				for _, b := range nb {
+					if planAgree(leads[a].dir, leads[b].dir) {
+						with = append(with, b)
+					}
+				}
+				switch {
+				case len(with) > len(agree):
+					agree, tied = with, false
+				case len(with) == len(agree) && !planAgree(leads[a].dir, leads[agree[0]].dir):
+					tied = true
+				}
+			}
+			if len(agree) < 2 || tied {
+				continue
+			}
+			// Their level, and which way their current flows along the
+			// first one's direction.
+			ref := leads[agree[0]].dir
+			along := func(d [2]float64, cur float64) float64 {
+				if d[0]*ref[0]+d[1]*ref[1] < 0 {
+					return -cur
+				}
+				return cur
+			}
+			var levels, ways []float64
+			for _, a := range agree {
+				levels = append(levels, leads[a].cur)
+				ways = append(ways, along(leads[a].dir, leads[a].signed))
+			}
+			level, way := median(levels), median(ways)
+			// The strongest line breaks the continuity when it runs off
+			// the agreed direction or carries far more than its level.
+			off := true
+			for _, a := range agree {
+				if planAgree(leads[i].dir, leads[a].dir) {
+					off = false
+				}
+			}
+			if !off && leads[i].cur <= continuityLevel*level {
+				continue
+			}
+			pick, best := -1, math.Inf(1)
+			for j := 1; j < len(res.Sources); j++ {
+				s := &res.Sources[j]
+				if s.Kind == KindDipole || !sound(s) || NoCurrent(s, ac) || !s.Identifiable.Azimuth {
+					continue
+				}
+				v, ok := planUnit(s.Dir)
+				if !ok {
+					continue
+				}
+				runs := true
+				for _, a := range agree {
+					if !planAgree(v, leads[a].dir) {
+						runs = false
+					}
+				}
+				// Of their level, flowing their way (a DC line carrying
+				// current against them is another conductor; an AC
+				// current is an RMS, its sense in the phase, not asked).
+				c := math.Abs(s.Current)
+				if !runs || !(c*continuityLevel >= level && c <= continuityLevel*level) || !ac && along(v, s.Current)*way < 0 {
+					continue
+				}
+				// Near one of their lines carried on.
+				for _, a := range agree {
+					reach := math.Max(continuityReach, planDist(i, a)/2)
+					if d := pointToLine(s.Point, leads[a].point, leads[a].dir3); d <= reach && d < best {
+						pick, best = j, d
+					}
+				}
+			}
+			if pick < 0 {
+				continue
+			}
+			f.Result = withLead(res, pick)
+			// The crossing's own partner core, when the fit resolved one:
+			// the lone-line findings name the pair (addLoneCover).
+			f.crossPairs = nil
+			for _, q := range res.Opposed {
+				a, b := q.Lines[0], q.Lines[1]
+				if a == pick || b == pick || (a != 0 && b != 0) {
+					continue
+				}
+				if a == 0 {
+					a = pick
+				} else {
+					b = pick
+				}
+				q.Lines = [2]int{a, b}
+				f.crossPairs = append(f.crossPairs, crossPair{q: q, cur: [2]float64{f.Result.Sources[a].Current, f.Result.Sources[b].Current}})
+			}
+			leads[i] = leadOf(i)
+			changed = true
+		}
+		if !changed {
+			break
+		}
+	}
+}
+
+// withLead is a copy of res with line pick first and the first line in
+// its place; the go-and-return pairs keep their lines (their indices
+// exchanged likewise). Opposed and SameWay, which inverse forms about the
+// strongest line, are dropped: they describe the line now moved.
+func withLead(res *inverse.Result, pick int) *inverse.Result {
+	r := *res
+	r.Sources = append([]inverse.SourceEstimate(nil), res.Sources...)
+	r.Sources[0], r.Sources[pick] = r.Sources[pick], r.Sources[0]
+	swap := func(k int) int {
+		switch k {
+		case 0:
+			return pick
+		case pick:
+			return 0
+		}
+		return k
+	}
+	r.Pairs = append([]inverse.PairEstimate(nil), res.Pairs...)
+	for k := range r.Pairs {
+		r.Pairs[k].Lines = [2]int{swap(r.Pairs[k].Lines[0]), swap(r.Pairs[k].Lines[1])}
+	}
+	r.Opposed, r.SameWay = nil, nil
+	return &r
 }

@@ -1,6 +1,10 @@
 package report
 
 import (
+	"fmt"
+	"strings"
+
+	"undercurrent/inverse"
 	"undercurrent/inverse/route"
 )
 
@@ -53,7 +57,7 @@ func (d *Document) addLoneCover(fits []Fit, r *route.Route, rs *route.Settings, 
 			continue
 		}
 		for j, s := range fits[p.Index].Result.Sources {
-			if j == 0 || s.Kind == KindDipole || !sound(&s) || tracked[key{p.Index, j}] || share(p.Index, j) || !s.Identifiable.Azimuth {
+			if j == 0 || s.Kind == KindDipole || !sound(&s) || tracked[key{p.Index, j}] || share(p.Index, j) || !s.Identifiable.Azimuth || lineAboveGround(fits[p.Index].Result, j, rs.SensorHeight) {
 				continue
 			}
 			lones = append(lones, lone{k, trackSource{fit: p.Index, source: j, steep: true, linePoint: s.Point, lineDir: s.Dir, lineDepth: s.Depth, azSigma: s.AzimuthSigma}})
@@ -88,10 +92,23 @@ func (d *Document) addLoneCover(fits []Fit, r *route.Route, rs *route.Settings, 
 			if j == 0 || s.Kind == KindDipole || !sound(&s) || tracked[key{p.Index, j}] || share(p.Index, j) {
 				continue
 			}
+			if lineAboveGround(fits[p.Index].Result, j, rs.SensorHeight) {
+				// No buried conductor: the group's poor fit says so
+				// (furtherAboveGround), and no cover is checked.
+				continue
+			}
 			l := route.Line{Point: s.Point, Dir: s.Dir, Current: s.Current, CurrentSigma: s.CurrentSigma, Depth: s.Depth, DepthSigma: s.DepthSigma, AzimuthSigma: s.AzimuthSigma, InLineWith: inLine(k, p.Index, j)}
 			if f, ok := route.LoneCover(p, l, rs, len(r.Stations) == 1); ok {
 				nf := findingOf(f)
 				nf.Lone = true
+				if note := crossPairNote(&fits[p.Index], j); note != "" {
+					// Before the cover, which is the line's own.
+					if at := strings.Index(nf.Message, "; its cover"); at >= 0 {
+						nf.Message = nf.Message[:at] + note + nf.Message[at:]
+					} else {
+						nf.Message += note
+					}
+				}
 				d.Findings = append(d.Findings, nf)
 				added = true
 			}
@@ -100,4 +117,45 @@ func (d *Document) addLoneCover(fits []Fit, r *route.Route, rs *route.Settings, 
 	if added {
 		SortFindings(d.Findings)
 	}
+}
+
+// crossPairNote names the go-and-return pair that line j of fit f belongs
+// to when it is a crossing line leadByContinuity moved from first place
+// and the fit resolved its partner core (Fit.crossPairs): "" otherwise.
+// In review a +15/-14.6 A feed pair crossing a pipe was reported as two
+// unrelated further lines.
+func crossPairNote(f *Fit, j int) string {
+	for _, pq := range f.validCrossPairs() {
+		q := &pq
+		a, b := q.Lines[0], q.Lines[1]
+		k := -1
+		switch j {
+		case a:
+			k = b
+		case b:
+			k = a
+		}
+		if k < 0 {
+			continue
+		}
+		o := &f.Result.Sources[k]
+		return fmt.Sprintf(", with the line of %s A beside it, %s m apart, it is one of a go-and-return pair crossing the route, net current %s A",
+			PlusMinus(o.Current, o.CurrentSigma), PlusMinus(q.Spacing, q.SpacingSigma), PlusMinus(q.NetCurrent, q.NetCurrentSigma))
+	}
+	return ""
+}
+
+// validCrossPairs are f's crossPairs that its Result still holds (the
+// same currents at their indices; a refit may have replaced the Result).
+func (f *Fit) validCrossPairs() []inverse.PairEstimate {
+	var out []inverse.PairEstimate
+	for _, c := range f.crossPairs {
+		a, b := c.q.Lines[0], c.q.Lines[1]
+		if f.Result == nil || a < 0 || b < 0 || a >= len(f.Result.Sources) || b >= len(f.Result.Sources) ||
+			f.Result.Sources[a].Current != c.cur[0] || f.Result.Sources[b].Current != c.cur[1] {
+			continue
+		}
+		out = append(out, c.q)
+	}
+	return out
 }

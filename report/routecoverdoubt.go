@@ -14,10 +14,11 @@ const routeAnomalyK = dipoleAgreeK
 
 // routeCoverDoubt says why conductor 1's least cover, at its station s of
 // route r, may not be the conductor's: the fit of s's group is poor or
-// ambiguous (Group.Problem), or s's current differs from both nearest
-// used neighbours' in the same sense by more than routeAnomalyK combined
-// standard deviations (the stations' sigmas and the route's
-// between-station scatter in quadrature). A conductor keeps its current
+// ambiguous (Group.Problem, not a base-gap mark alone: fitDoubted), or
+// s's current differs from both nearest used neighbours' in the same
+// sense by more than routeAnomalyK combined standard deviations (the
+// stations' sigmas and the route's between-station scatter in
+// quadrature). A conductor keeps its current
 // between tees and faults, and a step changes it on one side only; a
 // fit whose current departs from both sides has absorbed a field the
 // straight-line model does not describe (in review a steel object
@@ -27,7 +28,7 @@ const routeAnomalyK = dipoleAgreeK
 // holds.
 func routeCoverDoubt(d *Document, r *Route, s Station) string {
 	var why []string
-	if g := d.groupByKey(s.Key); g != nil && g.Problem != "" {
+	if g := d.groupByKey(s.Key); g != nil && d.fitDoubted(g) {
 		why = append(why, "its traverse's fit is poor or ambiguous")
 	}
 	if lo, hi, ok := routeNeighbours(r, s.Key); ok {

@@ -3,6 +3,7 @@ package report
 import (
 	"fmt"
 	"math"
+	"slices"
 	"sort"
 
 	"undercurrent/inverse"
@@ -407,7 +408,11 @@ func associateRepeats(groups [][]trackSource, minStations int, gap float64) [][]
 // line paired with each group's strongest is part of conductor 1 and is
 // not offered. A go-and-return pair beside conductor 1 is offered as one
 // source (trackSource.pair), and its lines are not.
-func trackCandidates(fits []Fit, r *route.Route, pairRoute, ac bool) [][]trackSource {
+//
+// A line over 3 sigma above the ground (lineAboveGround, the ground known
+// from sensorHeight or the fits' reference level) is no buried conductor
+// and is not offered.
+func trackCandidates(fits []Fit, r *route.Route, pairRoute, ac bool, sensorHeight float64) [][]trackSource {
 	out := make([][]trackSource, len(r.Stations))
 	for k := range r.Stations {
 		p := &r.Stations[k]
@@ -429,8 +434,14 @@ func trackCandidates(fits []Fit, r *route.Route, pairRoute, ac bool) [][]trackSo
 			partner = sw.Lines[1] // summed into the station (sameway.go)
 		}
 		inPair := map[int]bool{}
-		for i := range res.Pairs {
-			q := &res.Pairs[i]
+		// A crossing pair whose cores the fit resolved, moved from first
+		// place (Fit.crossPairs), is offered as one source too, so that
+		// its cores are not linked as lines with other lines (a crossing
+		// pair's core and the pair's field fitted as one line at the next
+		// traverse read as a 16 A "current leaving" a further conductor).
+		pairs := append(slices.Clone(res.Pairs), fits[p.Index].validCrossPairs()...)
+		for i := range pairs {
+			q := &pairs[i]
 			a, b := q.Lines[0], q.Lines[1]
 			if a == 0 || b == 0 || a == partner || b == partner {
 				continue // conductor 1's own pair (circuitOf)
@@ -451,7 +462,7 @@ func trackCandidates(fits []Fit, r *route.Route, pairRoute, ac bool) [][]trackSo
 			if s.Kind == KindDipole || j+1 == partner || inPair[j+1] {
 				continue
 			}
-			if !sound(&s) {
+			if !sound(&s) || lineAboveGround(res, j+1, sensorHeight) {
 				continue
 			}
 			off, depth := crossOffset(p.Point, u, right, s)
@@ -688,7 +699,7 @@ func buildTracks(fits []Fit, r *route.Route, rs *route.Settings, minStations int
 	if minStations < 1 {
 		return nil, nil
 	}
-	tracks := associateRepeats(trackCandidates(fits, r, pairRoute, ac), minStations, r.RepeatGap())
+	tracks := associateRepeats(trackCandidates(fits, r, pairRoute, ac, rs.SensorHeight), minStations, r.RepeatGap())
 	out := make([]builtTrack, 0, len(tracks))
 	for i, members := range tracks {
 		n := i + 2
