@@ -50,12 +50,18 @@ const (
 // objectTails refits the traverses within reach of the objects accepted
 // (the fits listed in kept, see above). It reports whether any fit
 // changed.
-func objectTails(fits []Fit, kept []accepted) bool {
+//
+// progress, when not nil, is told of each fit looked at (done of
+// len(fits)), from the calling goroutine.
+func objectTails(fits []Fit, kept []accepted, progress func(done, total int)) bool {
 	if len(kept) == 0 {
 		return false
 	}
 	changed := false
 	for i := range fits {
+		if progress != nil {
+			progress(i, len(fits))
+		}
 		f := &fits[i]
 		res, p := f.Result, f.Problem
 		if f.Dipole || f.object != nil || f.sameObject != "" || f.surface != nil || res == nil || p == nil ||
@@ -110,6 +116,9 @@ func objectTails(fits []Fit, kept []accepted) bool {
 		dropSearch(f)
 		f.Result = out
 		changed = true
+	}
+	if progress != nil {
+		progress(len(fits), len(fits))
 	}
 	return changed
 }
