@@ -154,6 +154,10 @@ type BuildSettings struct {
 	// seen in to be followed along the route as a track of its own
 	// (Document.Conductors); 0 means 3, negative follows none.
 	TrackMinStations int
+	// Progress, when not nil, is told how far the search for magnetised
+	// objects has got, the longest part of Build on a survey with many
+	// groups (progress.go); its calls come one at a time.
+	Progress ProgressFunc
 }
 
 // Build makes the result document from per-group fits: head supplies what
@@ -335,7 +339,7 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 	}
 	// Groups the route finds anomalous may hold a magnetised object:
 	// refit them with a dipole (dipole.go) and analyse again.
-	if len(fits) > 1 && checkDipoles(fits, r) {
+	if len(fits) > 1 && checkDipoles(fits, r, bs.Progress) {
 		if r, err = analyse(); err != nil {
 			return nil, err
 		}
@@ -348,7 +352,7 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 		// A current anomaly on a further conductor may be a magnetised
 		// object beside it (dipole.go): refit those groups and follow the
 		// conductors again.
-		if checkTrackDipoles(fits, r, tracks) {
+		if checkTrackDipoles(fits, r, tracks, bs.Progress) {
 			if r, err = analyse(); err != nil {
 				return nil, err
 			}

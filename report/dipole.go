@@ -336,21 +336,31 @@ func neighbourStations(r *route.Route, key string, skip map[string]bool) (near [
 // checkDipoles searches the candidate groups of r for a magnetised object
 // and marks those the rules above accept. It reports whether any group
 // changed.
-func checkDipoles(fits []Fit, r *route.Route) bool {
+//
+// progress, when not nil, is told how far it has got (BuildSettings.Progress):
+// the searches done of those to make, then the traverses looked at for the
+// objects' tails (objectTails).
+func checkDipoles(fits []Fit, r *route.Route, progress ProgressFunc) bool {
 	cand := dipoleCandidates(r)
 	// The searches are independent: run them a few at a time.
 	found := make([]*dipoleSearch, len(fits))
-	var wg sync.WaitGroup
-	sem := make(chan struct{}, runtime.GOMAXPROCS(0))
+	var search []int
 	for i := range fits {
 		f := &fits[i]
 		if !cand[f.Key] || f.Dipole || f.Result == nil || len(f.Result.Sources) == 0 {
 			continue
 		}
+		search = append(search, i)
+	}
+	done := progress.counter(StageObjectSearch, len(search))
+	var wg sync.WaitGroup
+	sem := make(chan struct{}, runtime.GOMAXPROCS(0))
+	for _, i := range search {
+		f := &fits[i]
 		wg.Add(1)
 		sem <- struct{}{}
 		go func() {
-			defer func() { <-sem; wg.Done() }()
+			defer func() { <-sem; done(); wg.Done() }()
 			ds := searchDipole(f)
 			keepSearch(f, ds)
 			if ds != nil && !(ds.current > currentK(f.Problem.Phasors != nil)*ds.currentSigma) {
@@ -419,7 +429,11 @@ func checkDipoles(fits []Fit, r *route.Route) bool {
 	}
 	// The traverses beside an object read its field's tail: refitted
 	// without it (objecttail.go).
-	if objectTails(fits, kept) {
+	var tails func(done, total int)
+	if progress != nil {
+		tails = func(done, total int) { progress(StageObjectTails, done, total) }
+	}
+	if objectTails(fits, kept, tails) {
 		changed = true
 	}
 	return changed
@@ -646,7 +660,9 @@ func withoutObject(fits []Fit, st *route.Station, ds *dipoleSearch) (cur, sig fl
 // conductors and the object (Fit.Result), and the object is reported on
 // the conductor's track, its distance measured from that conductor
 // (trackStation). It reports whether any group changed.
-func checkTrackDipoles(fits []Fit, r *route.Route, tracks []builtTrack) bool {
+//
+// progress, when not nil, is told of the searches done (StageTrackObjectSearch).
+func checkTrackDipoles(fits []Fit, r *route.Route, tracks []builtTrack, progress ProgressFunc) bool {
 	type job struct {
 		fit   int
 		track *builtTrack
@@ -681,13 +697,14 @@ func checkTrackDipoles(fits []Fit, r *route.Route, tracks []builtTrack) bool {
 	if len(jobs) == 0 {
 		return false
 	}
+	done := progress.counter(StageTrackObjectSearch, len(jobs))
 	var wg sync.WaitGroup
 	sem := make(chan struct{}, runtime.GOMAXPROCS(0))
 	for _, j := range jobs {
 		wg.Add(1)
 		sem <- struct{}{}
 		go func() {
-			defer func() { <-sem; wg.Done() }()
+			defer func() { <-sem; done(); wg.Done() }()
 			var ok bool
 			if j.ds, ok = keptSearch(&fits[j.fit]); !ok {
 				j.ds = searchDipole(&fits[j.fit])

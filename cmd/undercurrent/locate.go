@@ -89,6 +89,10 @@ type locateOptions struct {
 	// axes is it read (identity when not given).
 	fieldAxes string
 	axes      axisMap
+
+	// buildProgress, when not nil, is told how far report.Build's search
+	// for magnetised objects has got (stageline.go's objectStages).
+	buildProgress report.ProgressFunc
 }
 
 // resultFiles are the files locate writes into its output directory.
@@ -420,8 +424,12 @@ Examples:
 				o.readOpts = append(o.readOpts, line.readOption())
 				o.baseOpts = append(o.baseOpts, line.readOption())
 			}
+			// After the fitting's bar, the search for objects.
+			objects := objectStages(stderr, line)
+			o.buildProgress = objects.progress()
 			doc, err := runLocate(ctx, o, args, line.handOff(progressOn(stderr)))
 			line.clear()
+			objects.clear()
 			if err != nil {
 				return err
 			}
@@ -1858,6 +1866,7 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 			// yardstick for a misfit every group shares when --noise
 			// is not given.
 			MeasuredNoise: medianOf(sv.windowSigma) + dcMeasuredNoise(sv),
+			Progress:      o.buildProgress,
 		})
 	})
 	if err != nil {

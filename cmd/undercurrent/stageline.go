@@ -7,6 +7,7 @@ import (
 	"time"
 
 	"undercurrent/ingest"
+	"undercurrent/report"
 )
 
 // A stageLine shows on a terminal what a long command is doing while no
@@ -137,4 +138,62 @@ type handOffWriter struct {
 func (h *handOffWriter) Write(p []byte) (int, error) {
 	h.line.clear()
 	return h.w.Write(p)
+}
+
+// objectLine shows on a terminal the stages of report.Build's search for
+// magnetised objects (report.ProgressFunc), which follows the fitting's
+// bar and on a survey with many objects takes longer than the fitting:
+// before, the terminal showed nothing for most of such a run (rv14c: 58 s
+// of 88 s on 600 traverses with a drum every 6 m). The line shows the
+// stage and its count ("searching for magnetised objects: 12 of 200
+// groups (9 s)"); it takes over from first, the command's stage line, if
+// that is still drawn. Where first is nil (not a terminal) it is nil too,
+// and its progress is nil: nothing is shown, nothing counted.
+type objectLine struct {
+	stderr io.Writer
+	first  *stageLine
+	mu     sync.Mutex
+	line   *stageLine
+	done   bool // cleared: later calls (Build not yet stopped after an interrupt) show nothing
+}
+
+func objectStages(stderr io.Writer, first *stageLine) *objectLine {
+	if first == nil {
+		return nil
+	}
+	return &objectLine{stderr: stderr, first: first}
+}
+
+// progress returns the report.ProgressFunc that draws the line (nil for a
+// nil objectLine).
+func (l *objectLine) progress() report.ProgressFunc {
+	if l == nil {
+		return nil
+	}
+	return func(stage string, done, total int) {
+		l.mu.Lock()
+		defer l.mu.Unlock()
+		if l.done {
+			return
+		}
+		text := fmt.Sprintf("%s: %d of %d groups", stage, done, total)
+		if l.line == nil {
+			l.first.clear()
+			l.line = newStageLine(l.stderr, text)
+			return
+		}
+		l.line.set(text)
+	}
+}
+
+// clear erases the line (see stageLine.clear); the line is not drawn
+// again.
+func (l *objectLine) clear() {
+	if l == nil {
+		return
+	}
+	l.mu.Lock()
+	defer l.mu.Unlock()
+	l.done = true
+	l.line.clear()
 }

@@ -90,3 +90,36 @@ func TestStageLineOnTerminal(t *testing.T) {
 		}
 	}
 }
+
+// TestObjectStageLineOnTerminal: on a terminal, after the fitting's bar,
+// locate says that it is searching for magnetised objects and how many
+// groups it has searched (report.BuildSettings.Progress); before, the
+// line stayed blank through that search, the larger part of a run on a
+// survey with many objects (rv14c: 58 s of 88 s). The survey is
+// drum-beside-cable.toml (the invented Pellow Bank, a drum beside a
+// cable: the route searches the drum's traverse). The line is erased
+// before the results, and in a pipe nothing is printed on stderr.
+func TestObjectStageLineOnTerminal(t *testing.T) {
+	defer func(d, e time.Duration) { stageLineDelay, stageLineEvery = d, e }(stageLineDelay, stageLineEvery)
+	stageLineDelay = 0 // drawn at once: the search here is quick
+	dir := t.TempDir()
+	_, scen := scenario(t, filepath.Join("open", "drum-beside-cable.toml"))
+	log := filepath.Join(dir, "drum.csv")
+	if code, _, errOut := cli(t, "simulate", scen, "-o", log); code != 0 {
+		t.Fatalf("simulate: exit %d: %s", code, errOut)
+	}
+	args := []string{"locate", "--group-by", "group", "--reference-z", "0", log}
+	code, out, shown := onTerminal(t, args...)
+	if code != 0 || !strings.Contains(out, "magnetised object") {
+		t.Fatalf("locate on a terminal: exit %d, stdout %q", code, out)
+	}
+	if !strings.Contains(shown, "searching for magnetised objects: 0 of ") {
+		t.Errorf("locate showed no search for objects on the terminal: %q", shown)
+	}
+	if !strings.HasSuffix(shown, "\r\x1b[K") {
+		t.Errorf("locate left its stage line: %q", shown)
+	}
+	if code, _, errOut := cli(t, args...); code != 0 || errOut != "" {
+		t.Errorf("locate in a pipe: exit %d, stderr %q", code, errOut)
+	}
+}
