@@ -225,10 +225,9 @@ func (p *processor) reduce(w *window) *reduced {
 			r.missing[s.Name] = sampleCount(n, exp) + ", too few to use"
 			continue
 		}
-		if axis, v := saturatedAxis(a, &s, &sr); axis != "" {
+		if axis, v, beyond := saturatedAxis(a, &s, &sr); axis != "" {
 			r.missing[s.Name] = "saturated"
-			r.alarms = append(r.alarms, p.alarm(w, AlarmSaturated, s.Name, v, s.Range,
-				fmt.Sprintf("sensor %s read %.8g nT on axis %s, at its range of ±%.8g nT: its readings are clipped and left out", s.Name, v, axis, s.Range)))
+			r.alarms = append(r.alarms, p.alarm(w, AlarmSaturated, s.Name, v, s.Range, saturatedMessage(s.Name, axis, v, s.Range, beyond)))
 			continue
 		}
 		if axis, v := p.stuckAxis(s.Name, &sr); axis != "" {
