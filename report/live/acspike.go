@@ -71,10 +71,7 @@ func acSpikes(d *sensorData, freq float64) []bool {
 		return nil
 	}
 	rate := float64(n-1) / span
-	H := 1
-	for H < acMaxHarmonic && float64(H+1)*freq*nyquistFactor <= rate*(1+1e-6) {
-		H++
-	}
+	H := acHarmonics(rate, freq)
 	cols := func(h int) int { return 9 + 2*(h-1) }
 	for H > 1 && n < acSamplesPerParam*cols(H) {
 		H--
@@ -101,14 +98,12 @@ func acSpikes(d *sensorData, freq float64) []bool {
 	w := 2 * math.Pi * freq
 	for i, t := range d.t {
 		row := basis.RawRowView(i)
-		s, c := math.Sincos(w * (t - d.t[0]))
+		wtau := w * (t - d.t[0])
+		s, c := math.Sincos(wtau)
 		q := u[i]*u[i] - m2
 		row[0], row[1], row[2], row[3], row[4] = c, s, 1, u[i], q
 		row[5], row[6], row[7], row[8] = u[i]*c, u[i]*s, q*c, q*s
-		for h := 2; h <= H; h++ {
-			sh, ch := math.Sincos(float64(h) * w * (t - d.t[0]))
-			row[9+2*(h-2)], row[10+2*(h-2)] = ch, sh
-		}
+		acHarmonicCols(row[9:], wtau, H)
 	}
 	axes := [3][]float64{d.bx, d.by, d.bz}
 	for _, col := range axes {

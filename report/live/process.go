@@ -278,24 +278,19 @@ func (p *processor) reduce(w *window) *reduced {
 		}
 	}
 	var ns []int
+	var gains []float64 // AC: each used sensor's fit's noise gain (acPhasors)
 	for _, d := range use {
 		s := a.Sensors[d.i]
 		R := p.rot[d.i]
 		if a.Mode == "ac" {
-			var ph [3]complex128
-			ok := true
-			for k, col := range [][]float64{d.bx, d.by, d.bz} {
-				f, err := calibrate.FitSine(d.t, col, r.freq, nil)
-				if err != nil {
-					r.missing[s.Name] = err.Error()
-					ok = false
-					break
-				}
-				ph[k] = f.Phasor()
-			}
-			if !ok {
+			// The fundamental with the harmonics the readings allow
+			// (acPhasors), so that a harmonic does not leak into it.
+			ph, g, err := acPhasors(d.t, [3][]float64{d.bx, d.by, d.bz}, r.freq, acFitHarmonics(d.t, r.freq))
+			if err != nil {
+				r.missing[s.Name] = err.Error()
 				continue
 			}
+			gains = append(gains, g)
 			r.ac = append(r.ac, d)
 			var e [3]complex128
 			for row := range 3 {
@@ -326,14 +321,21 @@ func (p *processor) reduce(w *window) *reduced {
 		// sine fit over n samples (AC): sigma / sqrt(n), each sensor with
 		// its own n (weighted least squares needs each reading's own
 		// variance). Sigma keeps the median sensor's, for estimators that
-		// take one value.
+		// take one value. An AC sensor's is widened by its fit's noise
+		// gain (acPhasors: 1 over whole cycles).
 		r.in.Sigmas = make([]float64, len(ns))
 		for k, n := range ns {
 			r.in.Sigmas[k] = a.Noise / math.Sqrt(float64(n))
+			if k < len(gains) {
+				r.in.Sigmas[k] *= gains[k]
+			}
 		}
-		sorted := append([]int(nil), ns...)
-		sort.Ints(sorted)
-		r.in.Sigma = a.Noise / math.Sqrt(float64(sorted[len(sorted)/2]))
+		order := make([]int, len(ns))
+		for k := range order {
+			order[k] = k
+		}
+		sort.SliceStable(order, func(i, j int) bool { return ns[order[i]] < ns[order[j]] })
+		r.in.Sigma = r.in.Sigmas[order[len(order)/2]]
 	}
 	return r
 }
@@ -371,7 +373,12 @@ func windowFrequency(use []sensorData, nominal float64) (float64, float64) {
 	if best == nil {
 		return nominal, 0
 	}
-	f0, err := calibrate.FitSine(bt, best, nominal, nil)
+	// The harmonics the readings allow are fitted beside the fundamental
+	// in the scan and in the four-parameter fit (acharmonics.go): a
+	// harmonic left out of the fit leaks into the fundamental's amplitude
+	// and pulls the frequency.
+	set := acSettings(acFitHarmonics(bt, nominal+maxFreqOffset))
+	f0, err := calibrate.FitSine(bt, best, nominal, set)
 	if err != nil {
 		return nominal, 0
 	}
@@ -388,11 +395,11 @@ func windowFrequency(use []sensorData, nominal float64) (float64, float64) {
 		if j == 0 || fr <= 0 {
 			continue
 		}
-		if f, err := calibrate.FitSine(bt, best, fr, nil); err == nil && f.Amplitude() > startAmp {
+		if f, err := calibrate.FitSine(bt, best, fr, set); err == nil && f.Amplitude() > startAmp {
 			start, startAmp = fr, f.Amplitude()
 		}
 	}
-	f4, err := calibrate.FitSine4(bt, best, start, nil)
+	f4, err := calibrate.FitSine4(bt, best, start, set)
 	if err != nil || !(math.Abs(f4.Freq-nominal) <= maxFreqOffset+step) || !(f4.Amplitude() > 0) {
 		return nominal, 0
 	}
