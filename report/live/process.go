@@ -271,9 +271,9 @@ func (p *processor) reduce(w *window) *reduced {
 		// when the window's frequency is another, again at it: the
 		// waveform off the site's frequency leaves residuals at it that
 		// hide smaller spikes.
-		despikeACWindow(use, a.Frequency, r, a.Sensors)
+		despikeACWindow(use, a.Frequency, a.Noise, r, a.Sensors)
 		r.freq, r.freqSigma = windowFrequency(use, a.Frequency)
-		if r.freq != a.Frequency && despikeACWindow(use, r.freq, r, a.Sensors) {
+		if r.freq != a.Frequency && despikeACWindow(use, r.freq, a.Noise, r, a.Sensors) {
 			r.freq, r.freqSigma = windowFrequency(use, a.Frequency)
 		}
 	}
