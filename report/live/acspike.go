@@ -64,22 +64,25 @@ const acCleanRatio = 1.5
 // its harmonics up to acMaxHarmonic below the sampling limit
 // (nyquistFactor), a quadratic drift of the static field, and a linear
 // and quadratic change of the fundamental's amplitude and phase (the
-// current changing within the window). A reading is marked when the
+// current changing within the window); with drift, each harmonic's too
+// (for a pass at a frequency the grid may be off: a harmonic's phase then
+// drifts h times as fast as the fundamental's). A reading is marked when the
 // residual of any axis departs from zero by more than acSpikeSigmas
 // robust standard deviations (1.4826 times the median absolute residual
 // of the readings fitted, the axis's own), and the fit is repeated
 // without the readings marked until they no longer change; the first fit
 // is found by trimming (see below). It returns nil when none is marked,
 // when the sensor has too few samples, or when more than acMaxSpikeShare
-// of them would be.
-func acSpikes(d *sensorData, freq, noise float64) []bool {
+// of them would be; clean is set when its first plain fit found the
+// window clean (which does not depend on drift).
+func acSpikes(d *sensorData, freq, noise float64, drift bool) (marks []bool, clean bool) {
 	n := len(d.t)
 	if n < acDespikeMin || !(freq > 0) {
-		return nil
+		return nil, false
 	}
 	span := d.t[n-1] - d.t[0]
 	if !(span > 0) {
-		return nil
+		return nil, false
 	}
 	rate := float64(n-1) / span
 	H := acHarmonics(rate, freq)
@@ -87,10 +90,20 @@ func acSpikes(d *sensorData, freq, noise float64) []bool {
 	for H > 1 && n < acSamplesPerParam*cols(H) {
 		H--
 	}
-	p := cols(H)
-	if n < acSamplesPerParam*p {
-		return nil
+	p0 := cols(H) // without the harmonics' changes
+	if n < acSamplesPerParam*p0 {
+		return nil, false
 	}
+	// With drift, the changes of harmonics 2 to Hd, as many as the
+	// readings allow beside the rest (four columns each).
+	Hd := 1
+	if drift {
+		Hd = H
+		for Hd > 1 && n < acSamplesPerParam*(p0+4*(Hd-1)) {
+			Hd--
+		}
+	}
+	p := p0 + 4*(Hd-1)
 	// The basis at every reading; time about the window's middle, in
 	// half-spans, so that the columns are of order one.
 	var tm float64
@@ -115,12 +128,20 @@ func acSpikes(d *sensorData, freq, noise float64) []bool {
 		row[0], row[1], row[2], row[3], row[4] = c, s, 1, u[i], q
 		row[5], row[6], row[7], row[8] = u[i]*c, u[i]*s, q*c, q*s
 		acHarmonicCols(row[9:], wtau, H)
+		// With drift, each harmonic's linear and quadratic change, as
+		// the fundamental's: off the window's frequency (the site's,
+		// before the window's is found) a harmonic's phase drifts h
+		// times as fast as the fundamental's.
+		for j, v := range row[9 : 9+2*(Hd-1)] {
+			row[p0+j] = u[i] * v
+			row[p0+2*(Hd-1)+j] = q * v
+		}
 	}
 	axes := [3][]float64{d.bx, d.by, d.bz}
 	for _, col := range axes {
 		for _, v := range col {
 			if math.IsNaN(v) || math.IsInf(v, 0) {
-				return nil
+				return nil, false
 			}
 		}
 	}
@@ -140,15 +161,15 @@ func acSpikes(d *sensorData, freq, noise float64) []bool {
 	var spread [3]float64
 	var X, Y, beta, pred mat.Dense
 	var qr mat.QR
-	fit := func(drop []bool, kept int) bool {
-		X.ReuseAs(kept, p)
+	fit := func(drop []bool, kept, pc int) bool {
+		X.ReuseAs(kept, pc)
 		Y.ReuseAs(kept, 3)
 		r := 0
 		for i := range n {
 			if drop[i] {
 				continue
 			}
-			X.SetRow(r, basis.RawRowView(i))
+			X.SetRow(r, basis.RawRowView(i)[:pc])
 			for k := range 3 {
 				Y.Set(r, k, axes[k][i])
 			}
@@ -162,7 +183,7 @@ func acSpikes(d *sensorData, freq, noise float64) []bool {
 			return false
 		}
 		pred.Reset()
-		pred.Mul(basis, &beta)
+		pred.Mul(basis.Slice(0, n, 0, pc), &beta)
 		X.Reset()
 		Y.Reset()
 		clear(score)
@@ -197,8 +218,9 @@ func acSpikes(d *sensorData, freq, noise float64) []bool {
 		}
 		return true
 	}
-	// First one plain fit to every reading: when no reading stands out of
-	// it, by half the cut-off, and each axis's robust spread is within
+	// First one plain fit to every reading, of the model without the
+	// harmonics' changes (p0 columns, all that a window at its own
+	// frequency needs): when no reading stands out of it, by half the cut-off, and each axis's robust spread is within
 	// acCleanRatio of the stated noise per reading (a burst that pulled
 	// the fit towards itself hides in the fit's own spread, but widens it
 	// far beyond the noise: 52 of 250 readings of -5e4 nT did), the window
@@ -207,11 +229,11 @@ func acSpikes(d *sensorData, freq, noise float64) []bool {
 	// noise, or with readings noisier than stated, every window takes the
 	// rounds.
 	drop := make([]bool, n)
-	if !fit(drop, n) {
-		return nil
+	if !fit(drop, n, p0) {
+		return nil, false
 	}
 	if noise > 0 && slices.Max(score) <= acSpikeSigmas/2 && slices.Max(spread[:]) <= acCleanRatio*noise {
-		return nil
+		return nil, true
 	}
 	// Start: the least-trimmed-squares concentration steps. A burst pulls
 	// the least squares fit towards itself, so that the spread of the
@@ -219,15 +241,15 @@ func acSpikes(d *sensorData, freq, noise float64) []bool {
 	// (one of 150 readings of 5e4 nT among 1000 did); each step fits the
 	// share 1 - acMaxSpikeShare of the readings that the previous fit
 	// missed least, which brings the fit to the waveform of the clean
-	// readings when a burst is shorter than that share. The plain fit
-	// above is its first step.
+	// readings when a burst is shorter than that share. Its first step
+	// fits every reading with the whole model.
 	left := 0
 	sorted := make([]float64, n)
 	next := make([]bool, n)
 	keep := n - int(acMaxSpikeShare*float64(n))
-	for round := range acTrimRounds {
-		if round > 0 && !fit(drop, n-left) {
-			return nil
+	for range acTrimRounds {
+		if !fit(drop, n-left, p) {
+			return nil, false
 		}
 		copy(sorted, score)
 		limit := calibrate.SelectKth(sorted, keep-1)
@@ -248,8 +270,8 @@ func acSpikes(d *sensorData, freq, noise float64) []bool {
 	// Then judge every reading against the fit to those kept, and fit
 	// again to those within acSpikeSigmas, until they no longer change.
 	for range acDespikeRounds {
-		if !fit(drop, n-left) {
-			return nil
+		if !fit(drop, n-left, p) {
+			return nil, false
 		}
 		nextLeft := 0
 		for i, v := range score {
@@ -259,7 +281,7 @@ func acSpikes(d *sensorData, freq, noise float64) []bool {
 			}
 		}
 		if float64(nextLeft) > acMaxSpikeShare*float64(n) {
-			return nil
+			return nil, false
 		}
 		same := slices.Equal(next, drop)
 		drop, next = next, drop
@@ -269,26 +291,34 @@ func acSpikes(d *sensorData, freq, noise float64) []bool {
 		}
 	}
 	if left == 0 {
-		return nil
+		return nil, false
 	}
-	return drop
+	return drop, false
 }
 
 // despikeACWindow leaves out of the AC window's sensors use the readings
 // that are spikes at freq (acSpikes), counting them in r, and reports
-// whether it left any out. A reading that departs at the same time as a
+// whether it left any out (drift: the harmonics' changes are fitted
+// too, see acSpikes), and which sensors' windows its first plain fit
+// found clean; the sensors in skip are taken as clean and not despiked
+// (found so by an earlier pass at the same frequency). A reading that departs at the same time as a
 // reading of another sensor (within a quarter of the period, or one and
 // a half sample intervals of either sensor) is kept: the conductors'
 // field changed (a current switched within the window, which the model of
 // acSpikes does not follow), seen by every sensor near them, while a
 // spike in a raw waveform is its own sensor's.
-func despikeACWindow(use []sensorData, freq, noise float64, r *reduced, names []SensorConfig) bool {
+func despikeACWindow(use []sensorData, freq, noise float64, drift bool, skip []bool, r *reduced, names []SensorConfig) (bool, []bool) {
 	marks := make([][]float64, len(use)) // each sensor's marked times
 	flags := make([][]bool, len(use))
+	clean := make([]bool, len(use))
 	dt := make([]float64, len(use))
 	for j := range use {
 		d := &use[j]
-		flags[j] = acSpikes(d, freq, noise)
+		if j < len(skip) && skip[j] {
+			clean[j] = true
+		} else {
+			flags[j], clean[j] = acSpikes(d, freq, noise, drift)
+		}
 		if n := len(d.t); n > 1 {
 			dt[j] = (d.t[n-1] - d.t[0]) / float64(n-1)
 		}
@@ -339,5 +369,5 @@ func despikeACWindow(use []sensorData, freq, noise float64, r *reduced, names []
 		r.addSpikes(names[d.i].Name, left)
 		any = true
 	}
-	return any
+	return any, clean
 }

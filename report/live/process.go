@@ -267,13 +267,26 @@ func (p *processor) reduce(w *window) *reduced {
 	}
 	if a.Mode == "ac" && len(use) > 0 {
 		// Despiked at the site's frequency first, so that a spike does
-		// not lead the frequency search (windowFrequency) astray; then,
-		// when the window's frequency is another, again at it: the
-		// waveform off the site's frequency leaves residuals at it that
-		// hide smaller spikes.
-		despikeACWindow(use, a.Frequency, a.Noise, r, a.Sensors)
-		r.freq, r.freqSigma = windowFrequency(use, a.Frequency)
-		if r.freq != a.Frequency && despikeACWindow(use, r.freq, a.Noise, r, a.Sensors) {
+		// not lead the frequency search (windowFrequency) astray, with the
+		// harmonics' changes fitted (acSpikes' drift): the grid may be off
+		// the site's frequency, and the harmonics' phases then drift
+		// through the window (a fit that did not follow them cut up to a
+		// quarter of a short window's clean readings, 31 of 125 at 250 ms,
+		// 50.1 Hz and a 10 % third harmonic, and the frequency was then
+		// lost). The readings are then despiked afresh at the window's
+		// frequency, and that pass's marks alone kept and counted.
+		// (despikeACWindow gives a sensor new slices; the copy of use
+		// shares none that it changes.)
+		// A sensor whose window the first pass found clean at its plain
+		// fit (the same at both passes) is not despiked again at the
+		// same frequency.
+		first := append([]sensorData(nil), use...)
+		cut, clean := despikeACWindow(first, a.Frequency, a.Noise, true, nil, &reduced{}, a.Sensors)
+		r.freq, r.freqSigma = windowFrequency(first, a.Frequency)
+		if r.freq != a.Frequency {
+			clean = nil
+		}
+		if again, _ := despikeACWindow(use, r.freq, a.Noise, false, clean, r, a.Sensors); again || cut {
 			r.freq, r.freqSigma = windowFrequency(use, a.Frequency)
 		}
 	}
