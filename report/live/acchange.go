@@ -5,8 +5,6 @@ import (
 	"sort"
 
 	"gonum.org/v1/gonum/mat"
-
-	"undercurrent/calibrate"
 )
 
 // An AC window's estimate is demodulated from the whole window: when the
@@ -96,12 +94,10 @@ func (p *processor) windowChangeAC(r *reduced) *windowSplit {
 				Y := mat.NewDense(m, 3, nil)
 				for i := lo; i < hi; i++ {
 					row := X.RawRowView(i - lo)
-					sn, cs := math.Sincos(w * (d.t[i] - t00))
+					wtau := w * (d.t[i] - t00)
+					sn, cs := math.Sincos(wtau)
 					row[0], row[1], row[2] = cs, sn, 1
-					for h := 2; h <= H; h++ {
-						sh, ch := math.Sincos(float64(h) * w * (d.t[i] - t00))
-						row[3+2*(h-2)], row[4+2*(h-2)] = ch, sh
-					}
+					acHarmonicCols(row[3:], wtau, H)
 					Y.Set(i-lo, 0, d.bx[i])
 					Y.Set(i-lo, 1, d.by[i])
 					Y.Set(i-lo, 2, d.bz[i])
@@ -224,20 +220,9 @@ func (p *processor) windowChangeAC(r *reduced) *windowSplit {
 			for H > 1 && hi-lo < acChangeBlockRuns*acCols(H) {
 				H--
 			}
-			var set *calibrate.SineSettings
-			if H > 1 {
-				set = &calibrate.SineSettings{}
-				for h := 2; h <= H; h++ {
-					set.Harmonics = append(set.Harmonics, h)
-				}
-			}
-			var ph [3]complex128
-			for a, col := range [][]float64{d.bx, d.by, d.bz} {
-				fit, err := calibrate.FitSine(d.t[lo:hi], col[lo:hi], f, set)
-				if err != nil {
-					return nil, err
-				}
-				ph[a] = fit.Phasor()
+			ph, g, err := acPhasors(d.t[lo:hi], [3][]float64{d.bx[lo:hi], d.by[lo:hi], d.bz[lo:hi]}, f, H)
+			if err != nil {
+				return nil, err
 			}
 			R := p.rot[d.i]
 			var e [3]complex128
@@ -247,7 +232,7 @@ func (p *processor) windowChangeAC(r *reduced) *windowSplit {
 				}
 			}
 			in.Phasors = append(in.Phasors, e)
-			in.Sigmas = append(in.Sigmas, sigmas[k]/math.Sqrt(float64(hi-lo)))
+			in.Sigmas = append(in.Sigmas, g*sigmas[k]/math.Sqrt(float64(hi-lo)))
 		}
 		sorted := append([]float64(nil), in.Sigmas...)
 		sort.Float64s(sorted)

@@ -7,6 +7,7 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
+	"maps"
 	"math"
 	"net"
 	"net/http"
@@ -427,18 +428,64 @@ func (s *Service) history(w http.ResponseWriter, r *http.Request) {
 
 // writeEstimatesCSV writes one row per window and conductor; later columns
 // (revision, then the commissioned geometry's share of the sigmas, then a
-// degraded window's sigma scale and the data lost before a window) come
-// after the earlier ones so that those keep their places.
+// degraded window's sigma scale and the data lost before a window, then
+// a change within the window, the sensors left out or short, the spikes,
+// the implausible reasons and the AC frequency) come after the earlier
+// ones so that those keep their places.
 func writeEstimatesCSV(w http.ResponseWriter, ests []Estimate) {
 	w.Header().Set("Content-Type", "text/csv")
 	cw := csv.NewWriter(w)
 	cw.Write([]string{"asset", "window", "start", "end", "conductor", "current_a", "current_sigma_a", "phase_deg", "phase_sigma_deg", "rms_nt", "chi2", "dof", "quality", "sensors", "revision",
-		"current_sigma_geometry_a", "phase_sigma_geometry_deg", "sigma_scale", "data_lost"})
+		"current_sigma_geometry_a", "phase_sigma_geometry_deg", "sigma_scale", "data_lost",
+		"change_at", "change_sigmas", "current_before_a", "current_before_sigma_a", "current_after_a", "current_after_sigma_a", "phase_before_deg", "phase_after_deg",
+		"missing", "spikes", "implausible", "frequency_hz", "frequency_sigma_hz"})
 	f := func(v float64) string { return strconv.FormatFloat(v, 'g', 10, 64) }
+	fp := func(v *float64) string {
+		if v == nil {
+			return ""
+		}
+		return f(*v)
+	}
 	for _, e := range ests {
 		scale := ""
 		if e.SigmaScale > 0 {
 			scale = f(e.SigmaScale)
+		}
+		// The window's own columns, the same on each of its rows:
+		// "sensor: reason" and "sensor: count" pairs by sensor name,
+		// joined by "; ", and the implausible reasons joined by " | "
+		// (they hold semicolons).
+		var miss, spk []string
+		for _, k := range slices.Sorted(maps.Keys(e.Missing)) {
+			miss = append(miss, k+": "+e.Missing[k])
+		}
+		for _, k := range slices.Sorted(maps.Keys(e.Spikes)) {
+			spk = append(spk, k+": "+strconv.Itoa(e.Spikes[k]))
+		}
+		fr, frs := "", ""
+		if e.Frequency > 0 {
+			fr = f(e.Frequency)
+		}
+		if e.FrequencySigma > 0 {
+			frs = f(e.FrequencySigma)
+		}
+		tail := []string{strings.Join(miss, "; "), strings.Join(spk, "; "), strings.Join(e.Implausible, " | "), fr, frs}
+		// change returns a conductor's change columns (empty on a steady
+		// window): the window's split time and size, in sigmas, on each
+		// of its rows, and the conductor's currents before and after.
+		change := func(name string) []string {
+			out := make([]string, 8)
+			if e.Change == nil {
+				return out
+			}
+			out[0], out[1] = f(e.Change.At), f(e.Change.Sigmas)
+			for _, l := range e.Change.Conductors {
+				if l.Name == name {
+					out[2], out[3], out[4], out[5] = f(l.Before), f(l.BeforeSigma), f(l.After), f(l.AfterSigma)
+					out[6], out[7] = fp(l.PhaseBefore), fp(l.PhaseAfter)
+				}
+			}
+			return out
 		}
 		for _, c := range e.Conductors {
 			ph, phs := "", ""
@@ -454,11 +501,15 @@ func writeEstimatesCSV(w http.ResponseWriter, ests []Estimate) {
 			if c.PhaseSigmaGeometry != nil {
 				gps = f(*c.PhaseSigmaGeometry)
 			}
-			cw.Write([]string{e.Asset, strconv.FormatInt(e.Window, 10), f(e.Start), f(e.End), c.Name, f(c.Current), f(c.CurrentSigma),
-				ph, phs, f(e.RMS), f(e.Chi2), strconv.Itoa(e.DOF), e.Quality, strconv.Itoa(e.Sensors), strconv.Itoa(e.Revision), gs, gps, scale, e.DataLost})
+			row := []string{e.Asset, strconv.FormatInt(e.Window, 10), f(e.Start), f(e.End), c.Name, f(c.Current), f(c.CurrentSigma),
+				ph, phs, f(e.RMS), f(e.Chi2), strconv.Itoa(e.DOF), e.Quality, strconv.Itoa(e.Sensors), strconv.Itoa(e.Revision), gs, gps, scale, e.DataLost}
+			row = append(append(row, change(c.Name)...), tail...)
+			cw.Write(row)
 		}
 		if len(e.Conductors) == 0 {
-			cw.Write([]string{e.Asset, strconv.FormatInt(e.Window, 10), f(e.Start), f(e.End), "", "", "", "", "", f(e.RMS), f(e.Chi2), strconv.Itoa(e.DOF), e.Quality, strconv.Itoa(e.Sensors), strconv.Itoa(e.Revision), "", "", scale, e.DataLost})
+			row := []string{e.Asset, strconv.FormatInt(e.Window, 10), f(e.Start), f(e.End), "", "", "", "", "", f(e.RMS), f(e.Chi2), strconv.Itoa(e.DOF), e.Quality, strconv.Itoa(e.Sensors), strconv.Itoa(e.Revision), "", "", scale, e.DataLost}
+			row = append(append(row, change("")...), tail...)
+			cw.Write(row)
 		}
 	}
 	cw.Flush()

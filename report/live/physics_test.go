@@ -53,7 +53,7 @@ func synthWindow(a *AssetConfig, cur []complex128, bg [3]float64, t0 float64, ra
 	return w
 }
 
-func harrowFen(t *testing.T) *Site {
+func harrowFen(t testing.TB) *Site {
 	t.Helper()
 	s, err := LoadSite(ingesttest.RepoRoot(t) + "/testdata/site/harrow-fen.toml")
 	if err != nil {

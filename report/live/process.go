@@ -225,10 +225,9 @@ func (p *processor) reduce(w *window) *reduced {
 			r.missing[s.Name] = sampleCount(n, exp) + ", too few to use"
 			continue
 		}
-		if axis, v := saturatedAxis(a, &s, &sr); axis != "" {
+		if axis, v, beyond := saturatedAxis(a, &s, &sr); axis != "" {
 			r.missing[s.Name] = "saturated"
-			r.alarms = append(r.alarms, p.alarm(w, AlarmSaturated, s.Name, v, s.Range,
-				fmt.Sprintf("sensor %s read %.8g nT on axis %s, at its range of ±%.8g nT: its readings are clipped and left out", s.Name, v, axis, s.Range)))
+			r.alarms = append(r.alarms, p.alarm(w, AlarmSaturated, s.Name, v, s.Range, saturatedMessage(s.Name, axis, v, s.Range, beyond)))
 			continue
 		}
 		if axis, v := p.stuckAxis(s.Name, &sr); axis != "" {
@@ -268,35 +267,43 @@ func (p *processor) reduce(w *window) *reduced {
 	}
 	if a.Mode == "ac" && len(use) > 0 {
 		// Despiked at the site's frequency first, so that a spike does
-		// not lead the frequency search (windowFrequency) astray; then,
-		// when the window's frequency is another, again at it: the
-		// waveform off the site's frequency leaves residuals at it that
-		// hide smaller spikes.
-		despikeACWindow(use, a.Frequency, r, a.Sensors)
-		r.freq, r.freqSigma = windowFrequency(use, a.Frequency)
-		if r.freq != a.Frequency && despikeACWindow(use, r.freq, r, a.Sensors) {
+		// not lead the frequency search (windowFrequency) astray, with the
+		// harmonics' changes fitted (acSpikes' drift): the grid may be off
+		// the site's frequency, and the harmonics' phases then drift
+		// through the window (a fit that did not follow them cut up to a
+		// quarter of a short window's clean readings, 31 of 125 at 250 ms,
+		// 50.1 Hz and a 10 % third harmonic, and the frequency was then
+		// lost). The readings are then despiked afresh at the window's
+		// frequency, and that pass's marks alone kept and counted.
+		// (despikeACWindow gives a sensor new slices; the copy of use
+		// shares none that it changes.)
+		// A sensor whose window the first pass found clean at its plain
+		// fit (the same at both passes) is not despiked again at the
+		// same frequency.
+		first := append([]sensorData(nil), use...)
+		cut, clean := despikeACWindow(first, a.Frequency, a.Noise, true, nil, &reduced{}, a.Sensors)
+		r.freq, r.freqSigma = windowFrequency(first, a.Frequency)
+		if r.freq != a.Frequency {
+			clean = nil
+		}
+		if again, _ := despikeACWindow(use, r.freq, a.Noise, false, clean, r, a.Sensors); again || cut {
 			r.freq, r.freqSigma = windowFrequency(use, a.Frequency)
 		}
 	}
 	var ns []int
+	var gains []float64 // AC: each used sensor's fit's noise gain (acPhasors)
 	for _, d := range use {
 		s := a.Sensors[d.i]
 		R := p.rot[d.i]
 		if a.Mode == "ac" {
-			var ph [3]complex128
-			ok := true
-			for k, col := range [][]float64{d.bx, d.by, d.bz} {
-				f, err := calibrate.FitSine(d.t, col, r.freq, nil)
-				if err != nil {
-					r.missing[s.Name] = err.Error()
-					ok = false
-					break
-				}
-				ph[k] = f.Phasor()
-			}
-			if !ok {
+			// The fundamental with the harmonics the readings allow
+			// (acPhasors), so that a harmonic does not leak into it.
+			ph, g, err := acPhasors(d.t, [3][]float64{d.bx, d.by, d.bz}, r.freq, acFitHarmonics(d.t, r.freq))
+			if err != nil {
+				r.missing[s.Name] = err.Error()
 				continue
 			}
+			gains = append(gains, g)
 			r.ac = append(r.ac, d)
 			var e [3]complex128
 			for row := range 3 {
@@ -327,14 +334,21 @@ func (p *processor) reduce(w *window) *reduced {
 		// sine fit over n samples (AC): sigma / sqrt(n), each sensor with
 		// its own n (weighted least squares needs each reading's own
 		// variance). Sigma keeps the median sensor's, for estimators that
-		// take one value.
+		// take one value. An AC sensor's is widened by its fit's noise
+		// gain (acPhasors: 1 over whole cycles).
 		r.in.Sigmas = make([]float64, len(ns))
 		for k, n := range ns {
 			r.in.Sigmas[k] = a.Noise / math.Sqrt(float64(n))
+			if k < len(gains) {
+				r.in.Sigmas[k] *= gains[k]
+			}
 		}
-		sorted := append([]int(nil), ns...)
-		sort.Ints(sorted)
-		r.in.Sigma = a.Noise / math.Sqrt(float64(sorted[len(sorted)/2]))
+		order := make([]int, len(ns))
+		for k := range order {
+			order[k] = k
+		}
+		sort.SliceStable(order, func(i, j int) bool { return ns[order[i]] < ns[order[j]] })
+		r.in.Sigma = r.in.Sigmas[order[len(order)/2]]
 	}
 	return r
 }
@@ -372,7 +386,12 @@ func windowFrequency(use []sensorData, nominal float64) (float64, float64) {
 	if best == nil {
 		return nominal, 0
 	}
-	f0, err := calibrate.FitSine(bt, best, nominal, nil)
+	// The harmonics the readings allow are fitted beside the fundamental
+	// in the scan and in the four-parameter fit (acharmonics.go): a
+	// harmonic left out of the fit leaks into the fundamental's amplitude
+	// and pulls the frequency.
+	set := acSettings(acFitHarmonics(bt, nominal+maxFreqOffset))
+	f0, err := calibrate.FitSine(bt, best, nominal, set)
 	if err != nil {
 		return nominal, 0
 	}
@@ -389,11 +408,11 @@ func windowFrequency(use []sensorData, nominal float64) (float64, float64) {
 		if j == 0 || fr <= 0 {
 			continue
 		}
-		if f, err := calibrate.FitSine(bt, best, fr, nil); err == nil && f.Amplitude() > startAmp {
+		if f, err := calibrate.FitSine(bt, best, fr, set); err == nil && f.Amplitude() > startAmp {
 			start, startAmp = fr, f.Amplitude()
 		}
 	}
-	f4, err := calibrate.FitSine4(bt, best, start, nil)
+	f4, err := calibrate.FitSine4(bt, best, start, set)
 	if err != nil || !(math.Abs(f4.Freq-nominal) <= maxFreqOffset+step) || !(f4.Amplitude() > 0) {
 		return nominal, 0
 	}

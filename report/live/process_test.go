@@ -11,7 +11,7 @@ import (
 // fenwickProcessor returns a processor for the harrow-fen site's
 // fenwick-lane asset (50 Hz go/return pair, 2 nT noise) with the fast
 // path set up.
-func fenwickProcessor(t *testing.T) (*AssetConfig, *processor) {
+func fenwickProcessor(t testing.TB) (*AssetConfig, *processor) {
 	t.Helper()
 	a := harrowFen(t).Asset("fenwick-lane")
 	p, err := newProcessor(a, "test")

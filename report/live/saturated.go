@@ -1,6 +1,9 @@
 package live
 
-import "math"
+import (
+	"fmt"
+	"math"
+)
 
 // A sensor driven past its range reads its rail, and a logger behind a
 // saturated front end adds its readout noise to it: the readings no longer
@@ -26,21 +29,35 @@ func SaturationMargin(noise, rng float64) float64 {
 	return math.Max(10*noise, 1e-4*rng)
 }
 
-// saturatedAxis returns the first axis on which sensor s reads within
-// saturationMargin of its range in the window's readings sr (before
-// calibration, as the sensor clips them), and that reading, or "" when
-// none does or no range is stated.
-func saturatedAxis(a *AssetConfig, s *SensorConfig, sr *series) (string, float64) {
+// saturatedAxis returns the axis on which sensor s reads within
+// saturationMargin of its range, or beyond it, in the window's readings
+// sr (before calibration, as the sensor clips them), the reading furthest
+// out, and whether that reading lies beyond the range by more than
+// saturationMargin (beyond): a sensor cannot read past its range, so
+// such a reading says the stated range_nt is wrong (set too low, or the
+// wrong sensor model), not that the sensor clipped. It returns "" when
+// no reading comes near the range or no range is stated.
+func saturatedAxis(a *AssetConfig, s *SensorConfig, sr *series) (axis string, v float64, beyond bool) {
 	if !(s.Range > 0) {
-		return "", 0
+		return "", 0, false
 	}
-	lim := s.Range - saturationMargin(a, s.Range)
+	m := saturationMargin(a, s.Range)
+	lim := s.Range - m
 	for k, col := range [][]float64{sr.Bx, sr.By, sr.Bz} {
-		for _, v := range col {
-			if math.Abs(v) >= lim {
-				return [3]string{"x", "y", "z"}[k], v
+		for _, x := range col {
+			if math.Abs(x) >= lim && (axis == "" || math.Abs(x) > math.Abs(v)) {
+				axis, v = [3]string{"x", "y", "z"}[k], x
 			}
 		}
 	}
-	return "", 0
+	return axis, v, axis != "" && math.Abs(v) > s.Range+m
+}
+
+// saturatedMessage is the saturated alarm's text for sensor name's
+// reading v on axis, range rng nT (saturatedAxis).
+func saturatedMessage(name, axis string, v, rng float64, beyond bool) string {
+	if beyond {
+		return fmt.Sprintf("sensor %s read %.8g nT on axis %s, beyond the stated range_nt of ±%.8g nT (check the site file: a sensor cannot read past its range, so the range stated is likely too low or of another sensor model): it is left out until its readings come within the range", name, v, axis, rng)
+	}
+	return fmt.Sprintf("sensor %s read %.8g nT on axis %s, at its range of ±%.8g nT: its readings are clipped and left out", name, v, axis, rng)
 }
