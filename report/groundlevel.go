@@ -444,7 +444,7 @@ func referenceLevelWarnings(fits []Fit, origin *Origin) (warn []string, off map[
 		}
 		return warn, nil
 	}
-	warn = append(warn, fmt.Sprintf("one flat ground level (--reference-z, up = %g m) does not hold for this survey: the sensors' mean height above it runs from %.2f m%s to %.2f m%s. Depths and cover below it are wrong where the ground is not at that level, and a line placed above it there says nothing of the data; give the sensors' height above the ground with --sensor-height instead (with heights in the log, the ground then follows them).%s",
+	warn = append(warn, fmt.Sprintf("one flat ground level (--reference-z, up = %g m) does not hold for this survey: the sensors' mean height above it runs from %.2f m%s to %.2f m%s. Depths and cover below it are wrong where the ground is not at that level, and a line placed above it there says nothing of the data: such a group is set aside, out of the current profile as well as the cover, so current steps and the current's steady fall are searched for without it; give the sensors' height above the ground with --sensor-height instead (with heights in the log, the ground then follows them).%s",
 		zref, lo.h, name(lo.key), hi.h, name(hi.key), frame))
 	off = map[string]float64{}
 	for _, g := range hs {
