@@ -1370,26 +1370,17 @@ const sameWayFarSpacing = 3
 // the bends in its depth the fits took two lines carrying 1.26 ± 0.21 and 0.67 ±
 // 0.21 A for the 2 A cable, and the route, following the stronger line alone,
 // read a current 0.7 A low there ("below both neighbours", or a step).
-//
-// The depths it measures spacing in are below the sensors' mean height, the
-// readings' own geometry, whatever depth reference the fit reports in: below
-// a flat --reference-z level that a climbing survey's sensors stood 1.5 m
-// above, the lines at 1.7 m below the sensors were 0.2 m "deep", and the
-// splits a weld made were no longer summed, which put two false current
-// steps on the route (found in review).
 func (f *fitter) sameWayOf(c *candidate, su *summary) []PairEstimate {
 	var best *PairEstimate
-	below := f.sv.zmean - su.zref // depth below the sensors less depth below the reference
 	f.linesBeside(c, su, sameWayMaxAngle, func(j int, base, sg []float64) {
 		a, b := &su.lines[0], &su.lines[j]
-		deeper := math.Max(a.Depth, b.Depth) + below
 		switch {
 		case !(a.CurrentSigma > 0) || !(b.CurrentSigma > 0):
 		// |I0 + Ij| > |I0 - Ij| when Re(I0 conj(Ij)) > 0: the same way.
 		case !(math.Abs(base[pqNet]) > 2*base[pqCurrentI]):
-		case !(base[pqSpacing] < sameWayFarSpacing*deeper):
+		case !(base[pqSpacing] < sameWayFarSpacing*math.Max(a.Depth, b.Depth)):
 		case !(sg[pqNet] < sameWaySplit*math.Min(a.CurrentSigma, b.CurrentSigma)):
-		case !(base[pqSpacing] < deeper) &&
+		case !(base[pqSpacing] < math.Max(a.Depth, b.Depth)) &&
 			!(b.CurrentSigma > pairRelSigma*math.Abs(b.Current)):
 		case best != nil && best.Spacing <= base[pqSpacing]:
 		default:
