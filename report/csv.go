@@ -10,6 +10,7 @@ import (
 	"strconv"
 
 	"undercurrent/inverse"
+	"undercurrent/inverse/route"
 )
 
 // csvHeader lists the columns of WriteCSV. used and left_out are empty
@@ -382,6 +383,15 @@ func (d *Document) sourceChainage(g *Group, s *Source) *float64 {
 					c := st.Chainage
 					return &c
 				}
+			}
+		}
+	}
+	if s.Kind == KindDipole && g.Chainage != nil && d.Route != nil {
+		// A magnetised object's own chainage, as its finding gives it.
+		for _, st := range d.Route.Stations {
+			if st.Key == g.Key {
+				c := route.ObjectChainage(st.Chainage, st.Point, st.Direction, s.Point)
+				return &c
 			}
 		}
 	}

@@ -415,9 +415,13 @@ func (v *view) where(f Finding) string {
 		// Its chainage is conductor 1's, but the line is not conductor 1.
 		parts = append(parts, "a further line that no conductor's track follows, not conductor 1")
 	}
-	parts = append(parts, en(f.Position))
-	if lon, lat, ok := v.D.wgs84(f.Position); ok {
-		parts = append(parts, latLon(lat, lon, 6))
+	// A finding about the whole route's current has no place to dig:
+	// its E/N (the route's middle) read as one (found in review).
+	if !wholeRoute(&f) || v.D.Route == nil {
+		parts = append(parts, en(f.Position))
+		if lon, lat, ok := v.D.wgs84(f.Position); ok {
+			parts = append(parts, latLon(lat, lon, 6))
+		}
 	}
 	if len(f.Groups) > 0 {
 		parts = append(parts, "groups "+strings.Join(f.Groups, ", "))

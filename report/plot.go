@@ -632,6 +632,9 @@ func placeFindingLabels(fs []Finding, scale float64, st text.Style, avoid []ptBo
 	var out []markLabel
 	var nums [][]string
 	for i, f := range fs {
+		if !onPlan(&f) {
+			continue
+		}
 		joined := false
 		for k := range out {
 			if math.Hypot(f.Position[0]-out[k].x, f.Position[1]-out[k].y) <= markShare*scale {
@@ -648,6 +651,9 @@ func placeFindingLabels(fs []Finding, scale float64, st text.Style, avoid []ptBo
 	pt := func(l markLabel) (float64, float64) { return l.x / scale, l.y / scale }
 	r, g := float64(markRadius), float64(markGap)
 	for _, f := range fs {
+		if !onPlan(&f) {
+			continue
+		}
 		mx, my := f.Position[0]/scale, f.Position[1]/scale
 		marks = append(marks, ptBox{mx - r, my - r, mx + r, my + r})
 	}
@@ -1026,6 +1032,18 @@ func labelSide(d *Document) float64 {
 	return 1
 }
 
+// onPlan reports whether the plan view marks finding f at its position:
+// every finding but one about the whole route's current (attenuation, a
+// steady fall from end to end), which has no place of its own. Marked at
+// the route's middle it shared the current step's triangle on a welded
+// main ("1,2"), a dig site for a finding that says there is none (found
+// in review). The findings table gives it its chainage only.
+func onPlan(f *Finding) bool { return !wholeRoute(f) }
+
+// wholeRoute reports whether f is about the route's current as a whole,
+// not about a place on it.
+func wholeRoute(f *Finding) bool { return f.Kind == "attenuation" }
+
 // addFindingMarks numbers the findings on the plan view: a triangle
 // coloured by severity at each, drawn least pressing first so that a
 // warning's is never hidden under a note's at the same place, and the
@@ -1042,6 +1060,9 @@ func addFindingMarks(p *plot.Plot, d *Document, side vg.Length) error {
 	})
 	for _, i := range order {
 		f := d.Findings[i]
+		if !onPlan(&f) {
+			continue
+		}
 		if _, err := scatter(p, xy{[]float64{f.Position[0]}, []float64{f.Position[1]}}, draw.TriangleGlyph{}, severityColour(f.Severity), markRadius); err != nil {
 			return err
 		}
@@ -1158,15 +1179,26 @@ func alongPlot(d *Document, r *Route, conductor int, which string, narrow bool) 
 	// stations past an end objects where no object was found.
 	var x, y, e, fx []float64
 	var objects, pastEnd, other xy
+	// across[k] is true when a station not used lies between used
+	// station k and the used station before it: the line between them is
+	// drawn dotted, as the plan view draws the route past such stations.
+	var across []bool
+	skipped := false
 	for i := range r.Stations {
 		st := &r.Stations[i]
 		v, s := st.Current, st.CurrentSigma
 		if which == "depth" {
 			v, s = st.Depth, st.DepthSigma
 		}
-		switch d.whyLeftOut(st, conductor) {
+		why := d.whyLeftOut(st, conductor)
+		if why != leftUsed {
+			skipped = true
+		}
+		switch why {
 		case leftUsed:
 			x, y, e = append(x, st.Chainage), append(y, v), append(e, 2*s)
+			across = append(across, skipped && len(x) > 1)
+			skipped = false
 		case leftFailed:
 			fx = append(fx, st.Chainage)
 		case leftObject:
@@ -1236,8 +1268,30 @@ func alongPlot(d *Document, r *Route, conductor int, which string, narrow bool) 
 		eb.LineStyle.Color = colFit
 		eb.LineStyle.Width = 1
 		p.Add(eb)
-		if _, err := polyline(p, xy{x, y}, colFit, 1); err != nil {
-			return nil, err
+		// The used stations joined solidly where they are neighbours,
+		// and by a dotted line across stations not used: drawn solid
+		// across three failed fits it read as a steady current measured
+		// where the report says none could be (found in review).
+		var gapNamed bool
+		for k0 := 0; k0 < len(x); {
+			k1 := k0 + 1
+			for k1 < len(x) && !across[k1] {
+				k1++
+			}
+			if _, err := polyline(p, xy{x[k0:k1], y[k0:k1]}, colFit, 1); err != nil {
+				return nil, err
+			}
+			if k1 < len(x) {
+				l, err := polyline(p, xy{x[k1-1 : k1+1], y[k1-1 : k1+1]}, colFit, 1, 1.5, 2.5)
+				if err != nil {
+					return nil, err
+				}
+				if l != nil && !gapNamed {
+					p.Legend.Add("across stations not used", l)
+					gapNamed = true
+				}
+			}
+			k0 = k1
 		}
 		s, err := scatter(p, xy{x, y}, draw.CircleGlyph{}, colFit, 2.5)
 		if err != nil {
@@ -1319,6 +1373,29 @@ func alongPlot(d *Document, r *Route, conductor int, which string, narrow bool) 
 			}
 		}
 	}
+	// Shade each unsearched stretch the route's caution names: the
+	// current there is not known, and a step within it could not be
+	// searched for (before, nothing on the plots marked it).
+	{
+		lo, hi := p.Y.Min, p.Y.Max
+		var named bool
+		for _, f := range d.Findings {
+			if f.Kind != "unsearched" || f.Conductor != conductor || f.Lone || !(f.ChainageTo > f.ChainageFrom) || !(hi > lo) {
+				continue
+			}
+			band, err := plotter.NewPolygon(plotter.XYs{{X: f.ChainageFrom, Y: lo}, {X: f.ChainageTo, Y: lo}, {X: f.ChainageTo, Y: hi}, {X: f.ChainageFrom, Y: hi}})
+			if err != nil {
+				return nil, err
+			}
+			band.Color = colUnsearched
+			band.LineStyle.Width = 0
+			p.Add(band)
+			if !named {
+				p.Legend.Add("unsearched stretch: no usable current", band)
+				named = true
+			}
+		}
+	}
 	if len(fx) > 0 {
 		// On the chainage axis: the bottom of the plot, which is the
 		// greatest depth on the depth plot's inverted scale.
@@ -1396,6 +1473,11 @@ func (r valueRange) off(v float64) bool {
 	span := math.Max(r.hi-r.lo, math.Max(0.1*math.Max(math.Abs(r.lo), math.Abs(r.hi)), 0.1))
 	return v < r.lo-span || v > r.hi+span
 }
+
+// colUnsearched shades an unsearched stretch on the route plots: the
+// caution's colour, mostly transparent, so that what is drawn there
+// shows through it.
+var colUnsearched = color.NRGBA{0xc9, 0x8a, 0x00, 0x30}
 
 // colStepBand shades a current step's one-sigma band of chainage: the
 // step line's colour, mostly transparent, so that the stations' bars show

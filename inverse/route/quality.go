@@ -209,6 +209,8 @@ func dipoleFinding(p *Placed, set *Settings, single bool) Finding {
 		return f
 	}
 	f.Position = o.Point
+	f.From = ObjectChainage(p.Chainage, p.Point, p.Dir, o.Point)
+	f.To = f.From
 	f.Message = fmt.Sprintf("the field at %s is better explained by a magnetised object (a buried steel or iron item) than by a current: a point dipole %s, %.1f m from the conductor (information criterion lower by %.0f); it is left out of the current and cover profile",
 		at(p, single), set.depthText(o.Depth, o.DepthSigma), o.Distance, o.Evidence)
 	f.Values = []Value{
@@ -222,6 +224,21 @@ func dipoleFinding(p *Placed, set *Settings, single bool) Finding {
 		Value{Name: "BIC lower by", Value: o.Evidence},
 	)
 	return f
+}
+
+// ObjectChainage is the chainage of an object at obj, m: its position
+// projected in plan on the conductor of the station at chainage c, whose
+// line passes through at in direction dir (turned along increasing
+// chainage). An object seen from two traverses, placed midway between
+// them, kept the reporting traverse's chainage, 1 m short of its east and
+// north given beside it (found in review). c itself when dir is not
+// horizontal enough to measure along.
+func ObjectChainage(c float64, at, dir, obj [3]float64) float64 {
+	u, ok := horizUnit(dir)
+	if !ok {
+		return c
+	}
+	return c + (obj[0]-at[0])*u[0] + (obj[1]-at[1])*u[1]
 }
 
 // distanceSigma is the one-sigma uncertainty of o.Distance, the object's
