@@ -533,6 +533,9 @@ type survey struct {
 	// with one has been read; logs are the survey logs, in order.
 	noOrigin string
 	logs     []string
+	// rewalks numbers the walks after the first of traverses walked
+	// again in one log (rewalks.go), keyed by rewalkKey.
+	rewalks map[string]int
 	// windowN are the AC windows' sample counts, and windowSigma their
 	// phasors' noise per axis from the windows' own sine-fit residuals
 	// (calibrate.Window.Sigma), nT.
@@ -752,6 +755,11 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		read = append(read, s)
 	}
 	if o.groupBy != "" {
+		// A traverse walked again under its own name in one log, after a
+		// pause (rewalks.go).
+		var ws []string
+		ws, sv.rewalks = splitRewalkedGroups(logs, read)
+		sv.warnings = append(sv.warnings, ws...)
 		// A traverse name used again in another log for another traverse,
 		// told apart once every log is read, so that the earliest keeps
 		// the name (loggroups.go).
@@ -1820,6 +1828,9 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 		fits[i].MeasuredNoise = g.measuredNoise(sv.ac)
 		if len(sv.logs) > 1 {
 			fits[i].Walk = logLabel(g.from, sv.logs)
+			if n := sv.rewalks[rewalkKey(g.from, g.key)]; n > 1 {
+				fits[i].Walk += fmt.Sprintf(" (walk %d)", n)
+			}
 		}
 		if t := g.firstTime(); calendarTime(t) {
 			fits[i].Start = time.UnixMilli(int64(math.Round(t * 1e3))).UTC()
