@@ -441,6 +441,9 @@ Examples:
 				for _, w := range doc.Warnings {
 					fmt.Fprintf(stderr, "warning: %s\n", w)
 				}
+				for _, n := range doc.Notes {
+					fmt.Fprintf(stderr, "note: %s\n", n)
+				}
 				return report.WriteJSON(stdout, doc)
 			}
 			printSummary(stdout, doc, time.Since(start))
@@ -908,7 +911,10 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			var note, w string
 			s, note, w = dcMains(o, path, s)
 			if note != "" {
-				sv.alerts = append(sv.alerts, note)
+				// What was done, right when the mains were found: a
+				// note, not a warning; what blocks leave of another
+				// line is the warning w (found in review).
+				doc.Notes = append(doc.Notes, note)
 			}
 			if w != "" {
 				sv.alerts = append(sv.alerts, w)
@@ -2328,6 +2334,10 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 	}
 	for _, wn := range doc.Warnings {
 		fmt.Fprintf(w, "warning: %s\n", wn)
+	}
+	// What the run did that needs no action (report.Document.Notes).
+	for _, n := range doc.Notes {
+		fmt.Fprintf(w, "note: %s\n", n)
 	}
 	printCautions(w)
 }
