@@ -536,6 +536,9 @@ type survey struct {
 	// with one has been read; logs are the survey logs, in order.
 	noOrigin string
 	logs     []string
+	// mainsNotes say the mains were averaged out (dcmains.go): notes,
+	// or warnings when no fit found a conductor after it.
+	mainsNotes []string
 	// rewalks numbers the walks after the first of traverses walked
 	// again in one log (rewalks.go), keyed by rewalkKey.
 	rewalks map[string]int
@@ -912,9 +915,10 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			s, note, w = dcMains(o, path, s)
 			if note != "" {
 				// What was done, right when the mains were found: a
-				// note, not a warning; what blocks leave of another
-				// line is the warning w (found in review).
-				doc.Notes = append(doc.Notes, note)
+				// note, not a warning (found in review), unless no
+				// fit finds a conductor after it (mainsNotesOrWarnings);
+				// what blocks leave of another line is the warning w.
+				sv.mainsNotes = append(sv.mainsNotes, note)
 			}
 			if w != "" {
 				sv.alerts = append(sv.alerts, w)
@@ -1877,6 +1881,7 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 	// Build puts a misfit every group shares first; an alert that names a
 	// cause (spikes left in, a route fitted as one line) still leads.
 	doc.Warnings = alertsFirst(doc.Warnings, alerts)
+	mainsNotesOrWarnings(doc, sv.mainsNotes)
 	if err := ctx.Err(); err != nil {
 		return nil, err
 	}
@@ -2534,4 +2539,22 @@ func sourceCurrent(s report.Source) string {
 		cur += fmt.Sprintf(" ∠%.0f°", *s.Phase)
 	}
 	return cur
+}
+
+// mainsNotesOrWarnings puts the statements that the mains were averaged
+// out before the DC fits (dcmains.go) into doc: notes when a fit found a
+// conductor after it (the averaging did its job), warnings, first, when
+// none did (an AC survey located without --freq: the field averaged
+// away was the one surveyed, and the statement names --freq).
+func mainsNotesOrWarnings(doc *report.Document, notes []string) {
+	if len(notes) == 0 {
+		return
+	}
+	for _, g := range doc.Groups {
+		if g.OK {
+			doc.Notes = append(doc.Notes, notes...)
+			return
+		}
+	}
+	doc.Warnings = append(append([]string(nil), notes...), doc.Warnings...)
 }
