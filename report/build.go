@@ -225,6 +225,7 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 	d.Groups, d.Route, d.Conductors = nil, nil, nil
 	d.Findings = append([]Finding{}, head.Findings...)
 	d.Warnings = append([]string(nil), head.Warnings...)
+	d.Notes = append([]string(nil), head.Notes...)
 
 	ac := false
 	for i, f := range fits {
@@ -384,7 +385,7 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 	if d.DepthReference.Kind == DepthBelowSensors {
 		d.DepthReference.PerGroup = perGroupReference(fits)
 	}
-	d.Warnings = append(d.Warnings, sensorHeightWarnings(fits, rs.SensorHeight)...)
+	d.Notes = append(d.Notes, sensorHeightNotes(fits, rs.SensorHeight)...)
 	d.Warnings = append(d.Warnings, levelWarn...)
 	shared := sharedMisfit(fits, &bs, rs)
 	if shared != "" {

@@ -57,8 +57,15 @@ type Document struct {
 	Conductors []Track `json:"conductors,omitempty"`
 	// Findings list what a crew should act on, most pressing first.
 	Findings []Finding `json:"findings"`
-	// Warnings are notes about the run (skipped rows, clipped readings).
+	// Warnings are notes about the run that may need action (skipped
+	// rows, clipped readings).
 	Warnings []string `json:"warnings,omitempty"`
+	// Notes say what the run did that needs no action when it is right
+	// (the mains averaged out over whole cycles, depths taken below the
+	// mean height of stacked sensors). Before, these were warnings, and a
+	// correct routine run printed warnings a crew could not act on
+	// (found in review).
+	Notes []string `json:"notes,omitempty"`
 	// UncertaintyNote says in words what the sigmas of the fits count
 	// (the reading noise only, not the error of the model) and where a
 	// realistic spread is given (Route.StationScatterCurrent and

@@ -314,13 +314,15 @@ func stackedHeights(pts [][3]float64) (spread, aboveLowest float64, ok bool) {
 	return spread, sumAbove / float64(nAbove), true
 }
 
-// sensorHeightWarnings are Build's warnings about --sensor-height: groups
+// sensorHeightNotes are Build's notes about --sensor-height: groups
 // whose readings stand at several heights at one place (stackedHeights),
 // where depths are below the mean height of all the sensors and the height
-// given must be that mean's. Relief under a traverse draws no warning: with
+// given is taken as that mean's. A note, not a warning: the height given
+// is the mean's as documented, and the note fired on every run with
+// stacked sensors, the right height given or not (found in review). Relief under a traverse draws no warning: with
 // heights logged, the ground is read over each line (groundAtLines), and a
 // sloping GNSS survey would draw it in every group.
-func sensorHeightWarnings(fits []Fit, h float64) []string {
+func sensorHeightNotes(fits []Fit, h float64) []string {
 	if !(h > 0) {
 		return nil
 	}
@@ -338,7 +340,7 @@ func sensorHeightWarnings(fits []Fit, h float64) []string {
 		}
 	}
 	if len(stacked) > 0 {
-		out = append(out, fmt.Sprintf("readings taken at one place stand at heights up to %.2f m apart (several sensors on one pole or cart) in %s: depths are below the mean height of all the sensors, and --sensor-height (%.2f m) must be that mean height above the ground, not one sensor's; here the mean lies %.2f m above the lowest sensor, so if %.2f m is the lowest sensor's height, give %.2f m",
+		out = append(out, fmt.Sprintf("readings taken at one place stand at heights up to %.2f m apart (several sensors on one pole or cart) in %s: depths are below the mean height of all the sensors, and --sensor-height (%.2f m) is taken as that mean height above the ground, not one sensor's; here the mean lies %.2f m above the lowest sensor, so if %.2f m is the lowest sensor's height, give %.2f m",
 			spread, groupList(stacked), h, above, h, h+above))
 	}
 	return out

@@ -211,6 +211,10 @@ footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rul
 <ul>
 {{range .D.Warnings}}<li>{{.}}</li>
 {{end}}</ul>{{end}}
+{{if .D.Notes}}<h3>Notes from the run</h3>
+<ul>
+{{range .D.Notes}}<li>{{.}}</li>
+{{end}}</ul>{{end}}
 </section>
 
 <footer>Made by {{or .D.Tool.Name "undercurrent"}} {{.D.Tool.Version}} · result document schema {{.D.SchemaVersion}}. Positions in metres, fields in nanotesla, currents in amperes{{if eq .D.Signal.Mode "ac"}} (RMS){{end}}.</footer>

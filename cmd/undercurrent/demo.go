@@ -162,6 +162,9 @@ func printFindings(w io.Writer, doc *report.Document) {
 	for _, wn := range doc.Warnings {
 		fmt.Fprintf(w, "note: %s\n", wn)
 	}
+	for _, n := range doc.Notes {
+		fmt.Fprintf(w, "note: %s\n", n)
+	}
 	printCautions(w)
 }
 

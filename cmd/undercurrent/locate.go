@@ -449,6 +449,9 @@ Examples:
 				for _, w := range doc.Warnings {
 					fmt.Fprintf(stderr, "warning: %s\n", w)
 				}
+				for _, n := range doc.Notes {
+					fmt.Fprintf(stderr, "note: %s\n", n)
+				}
 				return report.WriteJSON(stdout, doc)
 			}
 			printSummary(stdout, doc, time.Since(start))
@@ -544,6 +547,12 @@ type survey struct {
 	// with one has been read; logs are the survey logs, in order.
 	noOrigin string
 	logs     []string
+	// mainsNotes say the mains were averaged out (dcmains.go): notes,
+	// or warnings when no fit found a conductor after it.
+	mainsNotes []string
+	// rewalks numbers the walks after the first of traverses walked
+	// again in one log (rewalks.go), keyed by rewalkKey.
+	rewalks map[string]int
 	// windowN are the AC windows' sample counts, and windowSigma their
 	// phasors' noise per axis from the windows' own sine-fit residuals
 	// (calibrate.Window.Sigma), nT.
@@ -767,6 +776,11 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		read = append(read, s)
 	}
 	if o.groupBy != "" {
+		// A traverse walked again under its own name in one log, after a
+		// pause (rewalks.go).
+		var ws []string
+		ws, sv.rewalks = splitRewalkedGroups(logs, read)
+		sv.warnings = append(sv.warnings, ws...)
 		// A traverse name used again in another log for another traverse,
 		// told apart once every log is read, so that the earliest keeps
 		// the name (loggroups.go).
@@ -915,7 +929,11 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			var note, w string
 			s, note, w = dcMains(o, path, s)
 			if note != "" {
-				sv.alerts = append(sv.alerts, note)
+				// What was done, right when the mains were found: a
+				// note, not a warning (found in review), unless no
+				// fit finds a conductor after it (mainsNotesOrWarnings);
+				// what blocks leave of another line is the warning w.
+				sv.mainsNotes = append(sv.mainsNotes, note)
 			}
 			if w != "" {
 				sv.alerts = append(sv.alerts, w)
@@ -1839,6 +1857,9 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 		fits[i].MeasuredNoise = g.measuredNoise(sv.ac)
 		if len(sv.logs) > 1 {
 			fits[i].Walk = logLabel(g.from, sv.logs)
+			if n := sv.rewalks[rewalkKey(g.from, g.key)]; n > 1 {
+				fits[i].Walk += fmt.Sprintf(" (walk %d)", n)
+			}
 		}
 		if t := g.firstTime(); calendarTime(t) {
 			fits[i].Start = time.UnixMilli(int64(math.Round(t * 1e3))).UTC()
@@ -1880,6 +1901,7 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 	// Build puts a misfit every group shares first; an alert that names a
 	// cause (spikes left in, a route fitted as one line) still leads.
 	doc.Warnings = alertsFirst(doc.Warnings, alerts)
+	mainsNotesOrWarnings(doc, sv.mainsNotes)
 	if err := ctx.Err(); err != nil {
 		return nil, err
 	}
@@ -2338,6 +2360,10 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 	for _, wn := range doc.Warnings {
 		fmt.Fprintf(w, "warning: %s\n", wn)
 	}
+	// What the run did that needs no action (report.Document.Notes).
+	for _, n := range doc.Notes {
+		fmt.Fprintf(w, "note: %s\n", n)
+	}
 	printCautions(w)
 }
 
@@ -2533,4 +2559,22 @@ func sourceCurrent(s report.Source) string {
 		cur += fmt.Sprintf(" ∠%.0f°", *s.Phase)
 	}
 	return cur
+}
+
+// mainsNotesOrWarnings puts the statements that the mains were averaged
+// out before the DC fits (dcmains.go) into doc: notes when a fit found a
+// conductor after it (the averaging did its job), warnings, first, when
+// none did (an AC survey located without --freq: the field averaged
+// away was the one surveyed, and the statement names --freq).
+func mainsNotesOrWarnings(doc *report.Document, notes []string) {
+	if len(notes) == 0 {
+		return
+	}
+	for _, g := range doc.Groups {
+		if g.OK {
+			doc.Notes = append(doc.Notes, notes...)
+			return
+		}
+	}
+	doc.Warnings = append(append([]string(nil), notes...), doc.Warnings...)
 }

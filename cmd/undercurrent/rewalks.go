@@ -1,0 +1,166 @@
+package main
+
+import (
+	"fmt"
+	"math"
+
+	"undercurrent/ingest"
+)
+
+// Traverses walked again in one log under the same name.
+//
+// Several logs' readings of one group value are another traverse where
+// they cover the same ground again more than reusedApartS apart
+// (loggroups.go). Within one log the group value pooled them: a traverse
+// re-walked at the end of the day under its own name, the current 10%
+// higher the second time (a rectifier re-tapped), was fitted as one
+// traverse whose current neither walk saw, called poor, with no word of
+// the repeat, while the same re-walk under another name drew the
+// walks-differ caution (found in review). splitRewalkedGroups applies the
+// several-logs rule within each log: a group's readings are cut at pauses
+// longer than reusedApartS between its successive readings, and a run
+// that covers the same ground again (sameGround, within reusedApartM) as
+// an earlier walk of the group, and lies together with none, is a walk of
+// its own, renamed VALUE (walk N). A traverse continued after a pause
+// (end to end) stays one walk, and one walked out and back without a
+// pause is never cut. The walks then lie at one chainage and are
+// compared as repeats (walks-differ).
+
+// rewalkMinReadings and rewalkMinLengthM: a run after a pause with fewer
+// readings, or shorter along the ground, is no walk of its own (a few
+// readings taken standing); it stays with the walk before it.
+const (
+	rewalkMinReadings = 5
+	rewalkMinLengthM  = 1.0
+)
+
+// rewalkName names the walk n (from 1) of the group value v.
+func rewalkName(v string, n int) string { return fmt.Sprintf("%s (walk %d)", v, n) }
+
+// splitRewalkedGroups renames, in each log of all, the rows of a group
+// value that walk its traverse again after a pause (see above), and
+// returns a warning for each such group and, for each walk after the
+// first, its number keyed by rewalkKey (the walk a station comes from,
+// when several logs name the walks by log).
+func splitRewalkedGroups(logs []string, all []*ingest.Samples) ([]string, map[string]int) {
+	walkNo := map[string]int{}
+	taken := map[string]bool{}
+	for _, s := range all {
+		for _, v := range s.Group {
+			taken[v] = true
+		}
+	}
+	var warns []string
+	for k, s := range all {
+		if s.Group == nil || s.NoTime || len(s.Time) != len(s.Group) {
+			continue
+		}
+		rows := map[string][]int{}
+		var order []string
+		for i, v := range s.Group {
+			if v == "" {
+				continue
+			}
+			if rows[v] == nil {
+				order = append(order, v)
+			}
+			rows[v] = append(rows[v], i)
+		}
+		type split struct {
+			value string
+			names []string
+			times []float64 // each walk's first reading
+			pause float64   // the shortest pause before a new walk, s
+		}
+		var splits []split
+		for _, v := range order {
+			idx := rows[v]
+			// Runs cut at pauses over reusedApartS.
+			var runs [][]int
+			start := 0
+			for j := 1; j <= len(idx); j++ {
+				if j == len(idx) || s.Time[idx[j]]-s.Time[idx[j-1]] > reusedApartS {
+					runs = append(runs, idx[start:j])
+					start = j
+				}
+			}
+			if len(runs) < 2 {
+				continue
+			}
+			partOf := func(r []int) *logPart {
+				p := &logPart{log: k, span: newReadingSpan()}
+				for _, i := range r {
+					p.span.add(s.X[i], s.Y[i], s.Time[i])
+					p.xy = append(p.xy, [2]float64{s.X[i], s.Y[i]})
+				}
+				return p
+			}
+			type walk struct {
+				at   *logPart
+				name string
+			}
+			walks := []*walk{{at: partOf(runs[0]), name: v}}
+			which := make([]*walk, len(runs))
+			which[0] = walks[0]
+			sp := split{value: v, names: []string{v}, times: []float64{s.Time[runs[0][0]]}, pause: math.Inf(1)}
+			for j := 1; j < len(runs); j++ {
+				p := partOf(runs[j])
+				long := math.Hypot(p.span.maxX-p.span.minX, p.span.maxY-p.span.minY) >= rewalkMinLengthM
+				var in *walk
+				again := false
+				for _, w := range walks {
+					if together(w.at, p) {
+						in = w
+						break
+					}
+					if d, _ := w.at.span.apart(p.span); d <= reusedApartM {
+						again = true // the same ground again, after the pause
+					}
+				}
+				if in == nil && (!again || !long || len(runs[j]) < rewalkMinReadings) {
+					in = which[j-1] // elsewhere, or too short to be a walk: left as before
+				}
+				if in == nil {
+					name := rewalkName(v, len(walks)+1)
+					for n := len(walks) + 2; taken[name]; n++ {
+						name = rewalkName(v, n)
+					}
+					taken[name] = true
+					walkNo[rewalkKey(logs[k], name)] = len(walks) + 1
+					in = &walk{at: &logPart{log: k, span: newReadingSpan()}, name: name}
+					walks = append(walks, in)
+					sp.names = append(sp.names, name)
+					sp.times = append(sp.times, s.Time[runs[j][0]])
+					sp.pause = math.Min(sp.pause, s.Time[runs[j][0]]-s.Time[runs[j-1][len(runs[j-1])-1]])
+				}
+				in.at.span.addSpan(p.span)
+				in.at.xy = append(in.at.xy, p.xy...)
+				which[j] = in
+				if in.name != v {
+					for _, i := range runs[j] {
+						s.Group[i] = in.name
+					}
+				}
+			}
+			if len(walks) > 1 {
+				splits = append(splits, sp)
+			}
+		}
+		for _, sp := range splits {
+			var when []string
+			for j, t := range sp.times {
+				w := sp.names[j]
+				if calendarTime(t) {
+					w += " from " + fmtBaseTime(t)
+				}
+				when = append(when, w)
+			}
+			warns = append(warns, fmt.Sprintf("%s: the group %s covers the same ground again after a pause of %s: taken for the traverse walked again, and fitted walk by walk (%s); the walks lie at one station and their currents are compared (walks-differ). A group's readings that cover the same ground again more than %g s after the ones before are another walk, as in several logs (a traverse continued after a pause, or walked out and back without one, is one walk)",
+				logs[k], sp.value, rangeText(sp.pause, sp.pause, "s"), joinAnd(when), reusedApartS))
+		}
+	}
+	return warns, walkNo
+}
+
+// rewalkKey keys a renamed walk by its log and name.
+func rewalkKey(log, name string) string { return log + "\x00" + name }
