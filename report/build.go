@@ -46,6 +46,13 @@ type Fit struct {
 	// gradient); both 0 when not measured. sharedMisfit names scattered
 	// positions as the cause of a misfit they explain.
 	PositionScatter, PositionMisfit float64
+	// ComponentSwing and MagnitudeSwing are the robust spread of the
+	// fit's residuals, nT, per field component and of |B| (the readings'
+	// magnitude less the model's); both 0 when not measured. A field
+	// that turned rather than changed (a sensor tilting with no attitude
+	// logged) leaves the first far above the second: sharedMisfit names
+	// the tilt.
+	ComponentSwing, MagnitudeSwing float64
 	// Walk names the survey log the group's readings come from, when a
 	// run reads several, and Start is the time of its first reading (zero
 	// when not known): the route names the walks by them where repeats
@@ -500,6 +507,14 @@ func sharedMisfit(fits []Fit, bs *BuildSettings, rs *route.Settings) string {
 		return fmt.Sprintf("%s, %.3g times the %.3g nT noise the readings themselves show and %.3g%% of the signal: the fitted lines do not describe this field, so positions, depths and currents mean nothing. A misfit this large on a strong field most often means the field's axes are read wrong: check the sensor's orientation and the field columns first (a sensor turned on its mount or upside down, two field columns swapped, an axis's sign reversed, a field logged north, east, down read as east, north, up; a base log beside the survey, --base, names the mistake), then conductors closer together than the fit can part or an object",
 			lead, m/nm, nm, 100*median(frac))
 	}
+	if c, g := tiltExplains(misses); c > 0 && m >= tiltMisfit*nm {
+		// The components miss, |B| does not: a sensor tilting by a
+		// tenth of a degree, no attitude logged, missed by 22 times
+		// the noise on every traverse and this warning named close
+		// conductors only (found in review).
+		return fmt.Sprintf("%s, %.3g times the %.3g nT noise the readings themselves show and %.2g%% of the signal: its components miss by %.3g nT (robust spread, median) and |B| by only %.3g nT: the field turned rather than changed, as it does when the sensor tilts or turns along the traverses with no attitude logged or read (sway, a leaning pole, wander: a tenth of a degree turns a 50 000 nT field by 90 nT), not as a conductor's field left out of the fit does, which moves |B| with it. Log the sensor's roll and pitch (and heading) and read them with --frame sensor, or hold the sensor level and steady; only then suspect conductors closer together than the fit can part or an object. Positions, depths and currents may be wrong although the fits, measured against one another, may pass as sound",
+			lead, m/nm, nm, 100*median(frac), c, g)
+	}
 	return fmt.Sprintf("%s, %.3g times the %.3g nT noise the readings themselves show and %.2g%% of the signal: the fitted lines do not describe this field (conductors closer together than the fit can part, such as the two cores of a pair, parallel circuits, or an object), so positions, depths and currents may be wrong although the fits, measured against one another, may pass as sound; confirm on site by other means",
 		lead, m/nm, nm, 100*median(frac))
 }
@@ -514,6 +529,38 @@ const (
 	axesMisfit      = 100
 	axesMisfitShare = 0.2
 )
+
+// tiltRatio is how many times |B|'s residual spread the components' (per
+// axis) must be for sharedMisfit to take a group's misfit for a turned
+// field: noise alone leaves them alike, a conductor's field left unfitted
+// changes |B| by its part along the Earth's field (cmd/undercurrent
+// measures only where that part leaves a ratio under 1.4), while a tilt
+// leaves |B| to the noise and to the part of the tilt the fit took up
+// (2-7 times the components' in review and in simulation); and tiltMisfit the least median misfit, in multiples
+// of the noise, for the tilt to be named (the tilt of a tenth of a degree
+// found in review missed by 22 times it).
+const (
+	tiltRatio  = 2.0
+	tiltMisfit = 5.0
+)
+
+// tiltExplains returns the median component and |B| residual spread, nT,
+// of the misses when over half of them swing their components tiltRatio
+// times as much as |B| and by at least tiltMisfit times their noise; 0, 0
+// otherwise.
+func tiltExplains(misses []misfit) (comp, mag float64) {
+	var cs, ms []float64
+	for _, m := range misses {
+		if m.compSwing >= tiltMisfit*m.noise && m.compSwing > tiltRatio*m.magSwing {
+			cs = append(cs, m.compSwing)
+			ms = append(ms, m.magSwing)
+		}
+	}
+	if 2*len(cs) <= len(misses) {
+		return 0, 0
+	}
+	return median(cs), median(ms)
+}
 
 // jitterShare is the least share of a group's misfit beyond its noise
 // (root-sum-square) that the scatter of its positions must make
@@ -546,8 +593,10 @@ type misfit struct {
 	key              string
 	rms, noise, frac float64
 	// posScatter and posMisfit are the fit's Fit.PositionScatter and
-	// PositionMisfit.
+	// PositionMisfit; compSwing and magSwing its ComponentSwing and
+	// MagnitudeSwing.
 	posScatter, posMisfit float64
+	compSwing, magSwing   float64
 }
 
 // measuredMisfits returns the number of groups whose noise was measured
@@ -600,7 +649,7 @@ func measuredMisfits(fits []Fit, bs *BuildSettings, rs *route.Settings) (n int, 
 			share = 0
 		}
 		if r > math.Sqrt(limit)*measured && sig > 0 && res.RMS > share*sig {
-			misses = append(misses, misfit{key: f.Key, rms: r, noise: measured, frac: res.RMS / sig, posScatter: f.PositionScatter, posMisfit: f.PositionMisfit})
+			misses = append(misses, misfit{key: f.Key, rms: r, noise: measured, frac: res.RMS / sig, posScatter: f.PositionScatter, posMisfit: f.PositionMisfit, compSwing: f.ComponentSwing, magSwing: f.MagnitudeSwing})
 		}
 	}
 	return n, misses

@@ -640,6 +640,69 @@ func groupMisfit(g *group, res *inverse.Result) float64 {
 	return res.RMS / n
 }
 
+// levelMisfit is groupMisfit with the group's noise grown by the misfit
+// its positions' error makes to its fit (posjitter.go: jitterMisfit,
+// root-sum-square), where the fit's residuals show it (jitterShown): the
+// scatter from reading to reading (trackScatter), or at least the error
+// of positions rounded to a step (positionQuantum: a uniform error of sd
+// step/√12). Positions exported to the centimetre (usual for corrected
+// satellite fixes) leave up to 5 mm of error that over a strong shallow
+// line's steep gradient made sound fits miss by over soundMisfit times
+// the readings' own noise (in review, 200 A at 0.5 m below the sensors),
+// and the check fell back to the readings' median, which holds thousands
+// of nT of the line's field, and named a turn of 12.6° the sensor did not
+// have. Rounded positions on a steady walk repeat a pattern every few
+// readings, which sensorTracks takes for sensors logged in turn, so the
+// step is read from the values themselves. A fit's background is not its
+// lines' field whatever the positions' error; a fit run off to a phantom
+// line (axes read wrong) misses by far more than the positions explain
+// and keeps its misfit.
+func levelMisfit(g *group, res *inverse.Result) float64 {
+	r := groupMisfit(g, res)
+	if r <= soundMisfit || !finite(r) {
+		return r
+	}
+	plan, up, _ := trackScatter(g.points, sensorTracks(g.points))
+	q := positionQuantum(g.points) / math.Sqrt(12)
+	plan, up = math.Max(plan, q), math.Max(up, q)
+	if !(plan > 0 || up > 0) {
+		return r
+	}
+	m, _, ok := jitterMisfit(res, g.points, plan, up, false)
+	if !ok || !jitterShown(res, m, false) {
+		return r
+	}
+	return res.RMS / math.Hypot(g.measuredNoise(false), m)
+}
+
+// positionQuantum returns the step, m, every coordinate of pts is a whole
+// multiple of (0.1, 0.05, 0.01, 0.005 or 0.001 m: positions exported to
+// the decimetre, centimetre or millimetre), or 0 when they are not so
+// rounded (or fewer than minDiffReadings).
+func positionQuantum(pts [][3]float64) float64 {
+	if len(pts) < minDiffReadings {
+		return 0
+	}
+	for _, q := range []float64{0.1, 0.05, 0.01, 0.005, 0.001} {
+		whole := true
+		for _, p := range pts {
+			for _, v := range p {
+				if x := v / q; !(math.Abs(x-math.Round(x)) < 1e-6) {
+					whole = false
+					break
+				}
+			}
+			if !whole {
+				break
+			}
+		}
+		if whole {
+			return q
+		}
+	}
+	return 0
+}
+
 // refitGroups returns the groups fitted again for orientTest.refit: at
 // most maxRefitGroups DC groups with readings, spread over the survey.
 func refitGroups(sv *survey) []*group {
@@ -751,7 +814,7 @@ func (c *baseCheck) surveyLevel(sv *survey) *surveyField {
 		if g.err != nil || g.res == nil {
 			continue
 		}
-		if r := groupMisfit(g, g.res); !(r <= soundMisfit) {
+		if r := levelMisfit(g, g.res); !(r <= soundMisfit) {
 			continue
 		}
 		bg := g.res.Background

@@ -1865,6 +1865,15 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 			fits[i].Start = time.UnixMilli(int64(math.Round(t * 1e3))).UTC()
 		}
 	}
+	// A field that turned rather than changed in the fits' residuals
+	// (sensorturn.go): the shared-misfit warning names unlogged tilt.
+	if !sv.ac {
+		for i, g := range sv.groups {
+			if i < len(fits) {
+				fits[i].ComponentSwing, fits[i].MagnitudeSwing = residualSwing(g)
+			}
+		}
+	}
 	// Positions that scatter from reading to reading (posjitter.go): the
 	// shared-misfit warning names them where they explain the misfit.
 	if w := positionJitter(sv, fits); w != "" {

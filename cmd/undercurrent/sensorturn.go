@@ -8,6 +8,7 @@ import (
 
 	"undercurrent/calibrate"
 	"undercurrent/ingest"
+	"undercurrent/inverse"
 )
 
 // Signs of a sensor whose orientation is not what the log says, looked
@@ -362,4 +363,78 @@ func (w *swing) warning() string {
 	}
 	return fmt.Sprintf("%s: the field turned within %d of %d groups rather than changed: its components swing by far more than |B| does (%s is %.0f, %.0f, %.0f nT east, north, up against %.0f nT of |B|, a turn of about %.1f°) that the fitted lines do not explain. The sensor was turning (rocking, swaying or turned on its pole) and its attitude is not logged, not read (a sensor-frame log needs --frame sensor and attitude columns) or not right; the fits take the turned Earth's field for conductors, and the misfit warning may blame conductors closer together than the fit can part. Log the attitude and read it, or hold the sensor level and steady; check its calibration",
 		strings.Join(w.logs, ", "), w.turned, w.groups, ex, w.comp[0], w.comp[1], w.comp[2], w.mag, w.angle)
+}
+
+// residualSwing returns the robust spread of the DC group g's fit
+// residuals, nT: per field component (the root-mean-square of the three
+// components' robust scales) and of |B| (the readings' magnitude less the
+// fitted model's); 0, 0 without a fit or with under 20 readings. A sensor
+// that tilts with no attitude logged turns the Earth's field between its
+// axes, |B| unchanged: a tenth of a degree moves the components of a
+// 52 400 nT field by up to 90 nT, which no line's field follows, while
+// |B| keeps to the noise; a wrong model (conductors closer together than
+// the fit can part, an object) leaves a field that changes |B| by its part
+// along the Earth's field, as much as a component (where the strongest
+// line runs near the field's direction, blindShare under minBlindShare,
+// |B| hardly sees its field and nothing is measured). swing.fitted's 1°
+// test on the readings themselves cannot see a turn this small under a
+// line's field; the residuals, with the lines taken out, can, and report
+// sharedMisfit compares the two spreads against the noise.
+func residualSwing(g *group) (comp, mag float64) {
+	r := g.res
+	n := len(g.fields)
+	if g.err != nil || r == nil || n < 20 || len(r.Residuals) != n {
+		return 0, 0
+	}
+	var e [3][]float64
+	for k := range 3 {
+		e[k] = make([]float64, 0, n)
+	}
+	m := make([]float64, 0, n)
+	for i, b := range g.fields {
+		d := r.Residuals[i]
+		if !finite(d[0]) || !finite(d[1]) || !finite(d[2]) || !finite(b[0]) || !finite(b[1]) || !finite(b[2]) {
+			continue
+		}
+		for k := range 3 {
+			e[k] = append(e[k], d[k])
+		}
+		model := [3]float64{b[0] - d[0], b[1] - d[1], b[2] - d[2]}
+		m = append(m, norm(b)-norm(model))
+	}
+	if len(m) < 20 || !(blindShare(r) >= minBlindShare) {
+		return 0, 0
+	}
+	comp = norm([3]float64{robustScale(e[0]), robustScale(e[1]), robustScale(e[2])}) / math.Sqrt(3)
+	return comp, robustScale(m)
+}
+
+// minBlindShare is the least share of the Earth's field's direction across
+// the strongest fitted line (blindShare) for residualSwing to measure: a
+// field a wrong model leaves circles the line, so |B| follows its part
+// along the Earth's field, s of it on average, and its components' spread
+// per axis against |B|'s is about √2/(√3 s), 1.4 at s = 0.6, under report
+// sharedMisfit's tiltRatio; a tilt's is as large as the fit leaves it.
+const minBlindShare = 0.6
+
+// blindShare returns the sine of the angle between the fit r's background
+// field (the Earth's) and its strongest line; NaN without either.
+func blindShare(r *inverse.Result) float64 {
+	var src *inverse.SourceEstimate
+	for i := range r.Sources {
+		s := &r.Sources[i]
+		if s.Kind == "line" && (src == nil || math.Abs(s.Current) > math.Abs(src.Current)) {
+			src = s
+		}
+	}
+	if src == nil {
+		return math.NaN()
+	}
+	bg := r.Background
+	nb, nd := norm(bg), norm(src.Dir)
+	if !(nb > 0) || !(nd > 0) {
+		return math.NaN()
+	}
+	c := [3]float64{bg[1]*src.Dir[2] - bg[2]*src.Dir[1], bg[2]*src.Dir[0] - bg[0]*src.Dir[2], bg[0]*src.Dir[1] - bg[1]*src.Dir[0]}
+	return norm(c) / (nb * nd)
 }
