@@ -30,27 +30,62 @@ import (
 // value is held by about 2.4 times as many readings as the next one down,
 // a rail by far more; unrounded readings repeat no value but a rail). A
 // walked DC log holds them in runs over the conductor, an AC log at the
-// waveform's peaks, cycle after cycle. They are left out of the fits, with
-// a warning naming them first.
+// waveform's peaks, cycle after cycle. A rail is at the sensor's range,
+// which its three axes share, so it is also about the largest |reading|
+// of any axis (clipShareRange), on an axis whose trace varies over many
+// resolution steps (clipMinSteps), and holds not more than a quarter of
+// the log (clipMaxShare): a quiet axis logged to a whole nanotesla repeats
+// its extreme too. They are left out of the fits, with a warning naming
+// them first.
 
 // clipNextRatio is how many times the readings at the next distinct value
 // inside a candidate rail its own readings must be.
 const clipNextRatio = 4
 
+// clipShareRange: a three-axis magnetometer's axes share one range, so a
+// rail, at the range, is at least about the largest |reading| on any axis
+// (this fraction of it, for gains and offsets that differ between the
+// axes by a few per cent). A quiet axis logged to a whole nanotesla holds
+// one value on most readings, its extreme: -300 nT held by 2781 of 3381
+// readings was taken as a rail while bz read 46000 nT in the same rows,
+// and 82% of the log was left out (found in review).
+const clipShareRange = 0.95
+
+// clipMinSteps: a rail is a flat top within a varying trace, so the axis
+// spans at least this many of its resolution steps (the smallest gap
+// between its distinct values); an axis whose whole span is a few steps
+// is one the sensor's resolution, not its range, holds still.
+const clipMinSteps = 10
+
+// clipMaxShare is the largest share of a log's readings the exact-repeat
+// test leaves out on its own: a rail holds the readings where the field
+// is strongest, over the conductor, not most of a log. Past it the
+// readings are kept and a warning says so; --range-nt leaves them out.
+const clipMaxShare = 0.25
+
 // clippedRows finds the readings of log s (its field columns as read,
 // before any correction) pinned at an axis's extreme, and returns which
-// rows to keep (nil when none is clipped) and a warning naming the rails,
-// the groups and the counts, for the log path. With the magnetometer's
+// rows to keep (nil when none is left out), a warning naming the rails,
+// the groups and the counts, for the log path, and a note when repeats
+// that look like a rail are kept (clipMaxShare). With the magnetometer's
 // range rng, nT (--range-nt; 0 for none), readings within
 // live.SaturationMargin of ±rng (noise the reading noise given, 0 for
 // none) are clipped too, as serve takes them with a site file's range_nt:
-// a rail with readout noise on it repeats no value.
-func clippedRows(path string, s *ingest.Samples, rng, noise float64) ([]bool, string) {
+// a rail with readout noise on it repeats no value; a reading beyond ±rng
+// by more than that margin is a usage error, as no sensor reads past its
+// range: the range given is not this sensor's.
+func clippedRows(path string, s *ingest.Samples, rng, noise float64) ([]bool, string, string, error) {
 	n := s.Len()
 	cols := [3][]float64{s.Bx, s.By, s.Bz}
 	var keep []bool
 	var parts []string
 	left := 0
+	where := func(i int) string {
+		if s.Group != nil {
+			return fmt.Sprintf("%s of %s", s.Group[i], path)
+		}
+		return fmt.Sprintf("reading %d of %s", i+1, path)
+	}
 	drop := func(col []float64, at func(v float64) bool) (int, string) {
 		if keep == nil {
 			keep = make([]bool, n)
@@ -93,7 +128,23 @@ func clippedRows(path string, s *ingest.Samples, rng, noise float64) ([]bool, st
 		return count, " (" + strings.Join(gs, ", ") + ")"
 	}
 	if rng > 0 {
-		lim := rng - live.SaturationMargin(noise, rng)
+		margin := live.SaturationMargin(noise, rng)
+		// A reading beyond the range: the range given is wrong (another
+		// sensor's, another unit). Before, such readings were counted as
+		// "within N nT of the range" and left out, all of a log's when
+		// the range was under every reading (found in review).
+		worst, wk, wi := 0.0, -1, 0
+		for k, col := range cols {
+			for i, v := range col {
+				if a := math.Abs(v); a > rng+margin && a > worst {
+					worst, wk, wi = a, k, i
+				}
+			}
+		}
+		if wk >= 0 {
+			return nil, "", "", usageErrorf("--range-nt %.6g is below |b%c| = %.6g nT read at %s: the range given is not this sensor's (no sensor reads beyond its range); give the range of the magnetometer that made this log, or leave --range-nt out", rng, "xyz"[wk], worst, where(wi))
+		}
+		lim := rng - margin
 		for k, col := range cols {
 			hit := false
 			for _, v := range col {
@@ -105,23 +156,38 @@ func clippedRows(path string, s *ingest.Samples, rng, noise float64) ([]bool, st
 			if !hit {
 				continue
 			}
-			count, where := drop(col, func(v float64) bool { return math.Abs(v) >= lim })
-			parts = append(parts, fmt.Sprintf("b%c reads within %.3g nT of the ±%.6g nT range given (--range-nt) on %d readings%s", "xyz"[k], rng-lim, rng, count, where))
+			count, groups := drop(col, func(v float64) bool { return math.Abs(v) >= lim })
+			parts = append(parts, fmt.Sprintf("b%c reads within %.3g nT of the ±%.6g nT range given (--range-nt) on %d readings%s", "xyz"[k], margin, rng, count, groups))
 		}
+	}
+	result := func(note string) ([]bool, string, string, error) {
+		if keep == nil {
+			return nil, "", note, nil
+		}
+		return keep, clippedWarning(path, parts, left, n), note, nil
 	}
 	if n < minDiffReadings {
-		if keep == nil {
-			return nil, ""
-		}
-		return keep, clippedWarning(path, parts, left, n)
+		return result("")
 	}
 	rd := make([][3]float64, n)
+	maxAbs := 0.0
 	for i := range n {
 		rd[i] = [3]float64{cols[0][i], cols[1][i], cols[2][i]}
+		for k := range 3 {
+			maxAbs = math.Max(maxAbs, math.Abs(cols[k][i]))
+		}
 	}
+	type rail struct {
+		c    calibrate.ClipRun
+		step float64
+	}
+	var rails []rail
 	for _, c := range calibrate.FindClipped(rd) {
 		if rng > 0 && math.Abs(c.Value) >= rng-live.SaturationMargin(noise, rng) {
 			continue // named above
+		}
+		if math.Abs(c.Value) < clipShareRange*maxAbs {
+			continue // inside the range another axis reads to
 		}
 		col := cols[c.Axis]
 		at := 0
@@ -145,17 +211,69 @@ func clippedRows(path string, s *ingest.Samples, rng, noise float64) ([]bool, st
 		if at < 3 || at < clipNextRatio*nextN {
 			continue
 		}
-		which := "smallest"
-		if c.Max {
-			which = "largest"
+		step, span := resolution(col)
+		if span < clipMinSteps*step {
+			continue // a few resolution steps: no trace to be cut
 		}
-		count, where := drop(col, func(v float64) bool { return v == c.Value })
-		parts = append(parts, fmt.Sprintf("b%c reads exactly %.6g nT, its %s value, on %d readings%s", "xyz"[c.Axis], c.Value, which, count, where))
+		rails = append(rails, rail{c, step})
 	}
-	if keep == nil {
-		return nil, ""
+	if len(rails) == 0 {
+		return result("")
 	}
-	return keep, clippedWarning(path, parts, left, n)
+	// Rows the rails would leave out, beyond those left out already.
+	out := 0
+	for i := range n {
+		if keep != nil && !keep[i] {
+			continue
+		}
+		for _, r := range rails {
+			if cols[r.c.Axis][i] == r.c.Value {
+				out++
+				break
+			}
+		}
+	}
+	if float64(out) > clipMaxShare*float64(n) {
+		var seen []string
+		for _, r := range rails {
+			seen = append(seen, fmt.Sprintf("b%c reads exactly %.6g nT, its %s value, on %d readings", "xyz"[r.c.Axis], r.c.Value, extremeWord(r.c.Max), r.c.N))
+		}
+		r := rails[0]
+		note := fmt.Sprintf("%s: %s, as a magnetometer held at its range would, but that is %d of %d readings: a rail holds the readings where the field is strongest, over the conductor, not so much of a log, and readings logged to a coarse resolution (here %.3g nT steps on b%c) can repeat an axis's extreme as often; they are kept in the fits. If %.6g nT is the sensor's range, give --range-nt %.6g to leave them out",
+			path, strings.Join(seen, "; "), out, n, r.step, "xyz"[r.c.Axis], math.Abs(r.c.Value), math.Abs(r.c.Value))
+		return result(note)
+	}
+	for _, r := range rails {
+		c := r.c
+		count, groups := drop(cols[c.Axis], func(v float64) bool { return v == c.Value })
+		parts = append(parts, fmt.Sprintf("b%c reads exactly %.6g nT, its %s value, on %d readings%s", "xyz"[c.Axis], c.Value, extremeWord(c.Max), count, groups))
+	}
+	return result("")
+}
+
+// extremeWord names an axis's extreme for the warnings.
+func extremeWord(top bool) string {
+	if top {
+		return "largest"
+	}
+	return "smallest"
+}
+
+// resolution returns the smallest gap between the distinct values of col
+// (its resolution, when logged to one) and the span of its values.
+func resolution(col []float64) (step, span float64) {
+	v := append([]float64(nil), col...)
+	sort.Float64s(v)
+	step = math.Inf(1)
+	for i := 1; i < len(v); i++ {
+		if d := v[i] - v[i-1]; d > 0 && d < step {
+			step = d
+		}
+	}
+	if len(v) > 0 {
+		span = v[len(v)-1] - v[0]
+	}
+	return step, span
 }
 
 // clippedWarning is clippedRows's warning for the log path: the rails

@@ -142,7 +142,8 @@ func TestClippedReadingsLeftOut(t *testing.T) {
 // TestClippedRowsNotASmoothPeak: a smooth anomaly's extreme is no rail,
 // even logged to a whole nanotesla, where its top value repeats: a line's
 // field (simulated, 5000 nT peak, 1 m down, readings every 5 mm, rounded
-// to 1 nT) is not taken as clipped; the same readings cut at a rail are.
+// to 1 nT) is not taken as clipped; the same readings cut at a rail on
+// bz, the largest axis (a sensor's axes share one range), are.
 func TestClippedRowsNotASmoothPeak(t *testing.T) {
 	var s ingest.Samples
 	for i := range 1200 {
@@ -153,18 +154,18 @@ func TestClippedRowsNotASmoothPeak(t *testing.T) {
 		s.By = append(s.By, math.Round(19000+b))
 		s.Bz = append(s.Bz, math.Round(-45000-0.5*b))
 	}
-	if keep, w := clippedRows("peak.csv", &s, 0, 0); keep != nil {
-		t.Errorf("smooth quantised peak taken as clipped: %q", w)
+	if keep, w, note, _ := clippedRows("peak.csv", &s, 0, 0); keep != nil || note != "" {
+		t.Errorf("smooth quantised peak taken as clipped: %q %q", w, note)
 	}
 	n := 0
-	for i, v := range s.By {
-		if v >= 23000 {
-			s.By[i] = 23000
+	for i, v := range s.Bz {
+		if v <= -47000 {
+			s.Bz[i] = -47000
 			n++
 		}
 	}
-	keep, w := clippedRows("peak.csv", &s, 0, 0)
-	if keep == nil || !strings.Contains(w, fmt.Sprintf("by reads exactly 23000 nT, its largest value, on %d readings", n)) {
-		t.Errorf("rail at 23000 nT on %d readings: %q", n, w)
+	keep, w, _, _ := clippedRows("peak.csv", &s, 0, 0)
+	if keep == nil || !strings.Contains(w, fmt.Sprintf("bz reads exactly -47000 nT, its smallest value, on %d readings", n)) {
+		t.Errorf("rail at -47000 nT on %d readings: %q", n, w)
 	}
 }

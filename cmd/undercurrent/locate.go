@@ -122,7 +122,7 @@ func (o *locateOptions) setFlags(fs *pflag.FlagSet) {
 	fs.Float64Var(&o.sensorHeight, "sensor-height", 0, "the sensors were carried `H` metres above the ground (cover = depth - H); with several sensors at different heights, H is the mean height of all of them; with heights in the log, the ground over each line is taken as the sensors' height where they pass over it minus H, else the ground is taken as level under each traverse")
 	fs.Float64Var(&o.groundSigma, "ground-sigma", 0, "the ground level is known to `S` metres (one sigma) from the depth reference, e.g. how steadily the sensors were held above it; added to the cover sigmas (which otherwise cover the reading noise only); an unsteady height that is not logged also biases the depths and makes their sigmas too small, which S does not mend: log the heights")
 	fs.Float64Var(&o.noise, "noise", 0, "reading noise per axis, `NT` nanotesla, of each reading (for AC, each window's phasor then has NT/sqrt(samples in it)); default, or 0: estimated from the fits")
-	fs.Float64Var(&o.rangeNT, "range-nt", 0, "the magnetometer reads up to ±`NT` nanotesla on each axis: readings within a ten-thousandth of it (or ten times --noise) are taken as clipped and left out of the fits, with a warning; without it, only readings repeating one value exactly at an axis's extreme are")
+	fs.Float64Var(&o.rangeNT, "range-nt", 0, "the magnetometer reads up to ±`NT` nanotesla on each axis: readings within a ten-thousandth of it (or ten times --noise) are taken as clipped and left out of the fits, with a warning, and a reading beyond it is an error; without it, only readings repeating one value exactly at an axis's extreme are")
 	fs.BoolVar(&o.robust, "robust", false, "down-weight outlying readings (Huber weights)")
 	fs.BoolVar(&o.despike, "despike", false, "remove spikes (readings off the local trend of their neighbours, and off a line current's shape fitted to them) before fitting")
 	fs.Float64Var(&o.stepK, "step-k", 0, "report a step in current when it exceeds `K` standard deviations (default 3)")
@@ -763,7 +763,14 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		}
 		if !o.coil.on() {
 			// Readings pinned at the sensor's range (clipped.go).
-			if keep, w := clippedRows(path, s, o.rangeNT, o.noise); keep != nil {
+			keep, w, note, err := clippedRows(path, s, o.rangeNT, o.noise)
+			if err != nil {
+				return nil, err
+			}
+			if note != "" {
+				sv.alerts = append(sv.alerts, note)
+			}
+			if keep != nil {
 				keepSampleRows(s, keep)
 				if sv.ac {
 					// An AC waveform cut at its peaks has lost its mean.
