@@ -147,17 +147,7 @@ func localTrackOff(pts [][2]float64, az []float64) trackTurn {
 	if len(pts) < 4 || len(az) != len(pts) {
 		return out
 	}
-	var me, mn float64
-	for _, p := range pts {
-		me, mn = me+p[0], mn+p[1]
-	}
-	me, mn = me/float64(len(pts)), mn/float64(len(pts))
-	var see, snn, sen float64
-	for _, p := range pts {
-		de, dn := p[0]-me, p[1]-mn
-		see, snn, sen = see+de*de, snn+dn*dn, sen+de*dn
-	}
-	th := 0.5 * math.Atan2(2*sen, see-snn)
+	me, mn, _, _, th := crossingAxis(pts)
 	ux, uy := math.Cos(th), math.Sin(th)
 	idx := make([]int, len(pts))
 	for i := range idx {
@@ -879,21 +869,11 @@ func trackOffDeg(pts [][2]float64, az []float64) float64 {
 	if len(pts) < 3 {
 		return math.NaN()
 	}
-	var me, mn float64
-	for _, p := range pts {
-		me, mn = me+p[0], mn+p[1]
-	}
-	me, mn = me/float64(len(pts)), mn/float64(len(pts))
-	var see, snn, sen float64
-	for _, p := range pts {
-		de, dn := p[0]-me, p[1]-mn
-		see, snn, sen = see+de*de, snn+dn*dn, sen+de*dn
-	}
+	_, _, see, snn, th := crossingAxis(pts)
 	if see+snn < 1 {
 		return math.NaN()
 	}
-	// The principal axis's angle from east, then as an azimuth.
-	th := 0.5 * math.Atan2(2*sen, see-snn)
+	// th is the principal axis's angle from east; then as an azimuth.
 	track := math.Mod(90-th*180/math.Pi+360, 180)
 	// The azimuths' median on the half circle: doubled angles averaged.
 	var c, s float64
@@ -957,4 +937,20 @@ func unseenTurnWarning(s, b [3]float64, allow float64, basePath, where string, c
 	return fmt.Sprintf("the survey's field is within the %.1f° of the base record's (%s, %s) that local anomalies and the distance between them allow, but at this site's dip of %.0f° a turn of the sensor about the vertical moves the field by only %.2f of the turn, so turns up to %.1f° cannot be seen in its direction. The fitted lines run %.1f° %s of the direction through their neighbours' crossings (median of %d groups, ± %.2f°; %.0f%% of them on that side), as a sensor turned %.1f° %s (seen from above) on its mount or pole makes them: currents and depths low by 1 - cos %.1f° (%.2f%%), azimuths and plan offsets turned with it. A conductor that bends or snakes between the traverses turns its lines off that direction too; if it runs straight and the magnetometer is turned on its mount%s, --mount-yaw %s turns the readings back%s. Check how the sensor is mounted and its heading reference",
 		allow, basePath, where, math.Abs(dip), h/norm(s), unseen, math.Abs(psi), map[bool]string{true: "clockwise", false: "anticlockwise"}[lt.signed > 0], lt.n, lt.se, 100*lt.same,
 		math.Abs(psi), side, math.Abs(psi), 100*(1-math.Cos(psi*math.Pi/180)), calNote, tenths(yawFlag), after)
+}
+
+// crossingAxis returns the centre of crossing points pts (east, north, m),
+// their sums of squares about it along east and north, and the angle of
+// their principal axis from east (radians).
+func crossingAxis(pts [][2]float64) (me, mn, see, snn, th float64) {
+	for _, p := range pts {
+		me, mn = me+p[0], mn+p[1]
+	}
+	me, mn = me/float64(len(pts)), mn/float64(len(pts))
+	var sen float64
+	for _, p := range pts {
+		de, dn := p[0]-me, p[1]-mn
+		see, snn, sen = see+de*de, snn+dn*dn, sen+de*dn
+	}
+	return me, mn, see, snn, 0.5 * math.Atan2(2*sen, see-snn)
 }

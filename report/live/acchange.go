@@ -234,24 +234,7 @@ func (p *processor) windowChangeAC(r *reduced) *windowSplit {
 			in.Phasors = append(in.Phasors, e)
 			in.Sigmas = append(in.Sigmas, g*sigmas[k]/math.Sqrt(float64(hi-lo)))
 		}
-		sorted := append([]float64(nil), in.Sigmas...)
-		sort.Float64s(sorted)
-		in.Sigma = sorted[len(sorted)/2]
-		out, err := p.est.Solve(&in)
-		if err == nil && (len(out.Current) != len(p.names) || len(out.CurrentSigma) != len(p.names) || len(out.Phase) != len(p.names) || nonFiniteOutput(out) != "") {
-			err = errChangeSolve
-		}
-		if err != nil {
-			return nil, err
-		}
-		if out.DOF > 0 && out.Chi2 > float64(out.DOF) {
-			g := math.Sqrt(out.Chi2 / float64(out.DOF))
-			for c := range out.CurrentSigma {
-				out.CurrentSigma[c] *= g
-				out.PhaseSigma[c] = math.Min(180, out.PhaseSigma[c]*g)
-			}
-		}
-		return out, nil
+		return p.solveChangePart(&in, true)
 	}
 	b, err := part(true)
 	if err != nil {

@@ -204,25 +204,7 @@ func (p *processor) windowChange(r *reduced) *windowSplit {
 			in.Fields = append(in.Fields, [3]float64{(s.cum[0][hi] - s.cum[0][lo]) / m, (s.cum[1][hi] - s.cum[1][lo]) / m, (s.cum[2][hi] - s.cum[2][lo]) / m})
 			in.Sigmas = append(in.Sigmas, s.sigma/math.Sqrt(m))
 		}
-		sorted := append([]float64(nil), in.Sigmas...)
-		sort.Float64s(sorted)
-		in.Sigma = sorted[len(sorted)/2]
-		out, err := p.est.Solve(&in)
-		if err == nil && (len(out.Current) != len(p.names) || len(out.CurrentSigma) != len(p.names) || nonFiniteOutput(out) != "") {
-			err = errChangeSolve
-		}
-		if err != nil {
-			return nil, err
-		}
-		// A part the model misses by more than its noise has its sigmas
-		// widened by its Birge ratio, as a degraded window's are.
-		if out.DOF > 0 && out.Chi2 > float64(out.DOF) {
-			f := math.Sqrt(out.Chi2 / float64(out.DOF))
-			for c := range out.CurrentSigma {
-				out.CurrentSigma[c] *= f
-			}
-		}
-		return out, nil
+		return p.solveChangePart(&in, false)
 	}
 	b, err := part(true)
 	if err != nil {
@@ -253,6 +235,34 @@ type changeSolveError struct{}
 func (changeSolveError) Error() string { return "the split window's fit gave no usable currents" }
 
 var errChangeSolve = changeSolveError{}
+
+// solveChangePart solves one part of a window split at a change: the
+// median of the readings' sigmas as the solve's, the output checked for a
+// current (and, for AC, a phase) per conductor, and a part the model misses
+// by more than its noise has its sigmas widened by its Birge ratio, as a
+// degraded window's are (AC phase sigmas at most 180 degrees).
+func (p *processor) solveChangePart(in *SolveInput, ac bool) (*SolveOutput, error) {
+	sorted := append([]float64(nil), in.Sigmas...)
+	sort.Float64s(sorted)
+	in.Sigma = sorted[len(sorted)/2]
+	out, err := p.est.Solve(in)
+	if err == nil && (len(out.Current) != len(p.names) || len(out.CurrentSigma) != len(p.names) || (ac && len(out.Phase) != len(p.names)) || nonFiniteOutput(out) != "") {
+		err = errChangeSolve
+	}
+	if err != nil {
+		return nil, err
+	}
+	if out.DOF > 0 && out.Chi2 > float64(out.DOF) {
+		f := math.Sqrt(out.Chi2 / float64(out.DOF))
+		for c := range out.CurrentSigma {
+			out.CurrentSigma[c] *= f
+			if ac {
+				out.PhaseSigma[c] = math.Min(180, out.PhaseSigma[c]*f)
+			}
+		}
+	}
+	return out, nil
+}
 
 // mad is the median absolute deviation of v about its median (0 for none).
 func mad(v []float64) float64 {
