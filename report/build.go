@@ -869,6 +869,7 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute boo
 	if f.PhaseRampHz != 0 {
 		hz, sigma := f.PhaseRampHz, f.PhaseRampSigmaHz
 		g.PhaseRampHz, g.PhaseRampSigmaHz = &hz, &sigma
+		st.PhaseRampHz, st.PhaseRampSigmaHz = hz, sigma
 	}
 	for _, c := range res.Criteria {
 		g.Criteria = append(g.Criteria, Criterion{Count: c.Count, AIC: c.AIC, BIC: c.BIC, RSS: c.RSS, Chosen: c.Chosen, Rejected: c.Rejected})

@@ -34,7 +34,15 @@ import (
 // scatter of the differences (from their median absolute deviation, robust
 // to the steps themselves) and added to every interval's sigma: where it
 // is large the phases between stations are not comparable and no phasor
-// step is reported (the magnitude steps stand alone).
+// step is reported (the magnitude steps stand alone). A frequency that
+// steps during the survey (a grid after a change of load, phase
+// continuous) turns the later stations' phases steadily, which the single
+// ramp leaves as a run of equal jumps (a 0.5 mHz step read as 11 A
+// leaving a clean 20 A route; found in review, simulated): a run with
+// phasorSteadyIntervals or more successive intervals turning at one rate
+// is taken as a ramp, not a step (steadyTurn), and no step is reported
+// across stations whose groups were fitted with phase ramps of different
+// frequencies (mixedFrequency).
 //
 // A phasor step replaces the magnitude step or change found over the same
 // stretch: its wording gives the current leaving with its angle to the
@@ -144,6 +152,14 @@ func phasorSteps(ps []Placed, st []Finding, set *Settings, tau float64) []Findin
 				break
 			}
 		}
+		// A steady turn over a run of stations is a change of frequency
+		// (a ramp that starts partway), not a step; and phases are not
+		// compared across stations whose groups were fitted at different
+		// frequencies.
+		if steadyTurn(e, v, t, excess, i, j, kz) || mixedFrequency(u, max(lo, ia-phasorSideStations), min(hi, ib+phasorSideStations)) {
+			i = j + 1
+			continue
+		}
 		if f, ok := phasorFinding(u, t, ia, ib, lo, hi, ramp, rampSigma, excess, tau, set); ok {
 			for k := range st {
 				g := &st[k]
@@ -165,6 +181,102 @@ func phasorSteps(ps []Placed, st []Finding, set *Settings, tau float64) []Findin
 		}
 	}
 	return append(kept, out...)
+}
+
+// phasorSteadyIntervals is the fewest successive intervals turning at one
+// rate that make a run of phase jumps a ramp rather than a step.
+const phasorSteadyIntervals = 3
+
+// steadyTurn reports whether the run of phase jumps i..j (e the intervals'
+// phase differences with the route's ramp taken out, v their variances
+// from the stations' sigmas, t the stations' times) holds
+// phasorSteadyIntervals or more successive intervals that turn the same
+// way at one rate (each within kz sigma of their weighted mean rate): the
+// phase keeps turning beyond the first jump instead of settling at a new
+// level, as after a step of the grid frequency partway through the survey
+// (phase continuous: a ramp that starts there). A current leaving between
+// two stations turns the phase across the transition only (a few depths
+// wide), the stations beyond sitting at the new phase; its intervals'
+// turns rise and fall with the share of the transition each spans.
+func steadyTurn(e, v, t []float64, excess float64, i, j int, kz float64) bool {
+	for a := i; a+phasorSteadyIntervals-1 <= j; a++ {
+		for b := j; b-a+1 >= phasorSteadyIntervals; b-- {
+			var sw, swr float64
+			sign := 0.0
+			same := true
+			for k := a; k <= b; k++ {
+				dt := t[k+1] - t[k]
+				if dt <= 0 {
+					same = false
+					break
+				}
+				if sign == 0 {
+					sign = math.Copysign(1, e[k])
+				} else if math.Copysign(1, e[k]) != sign {
+					same = false
+					break
+				}
+				s2 := (v[k] + excess*excess) / (dt * dt)
+				if s2 <= 0 {
+					same = false
+					break
+				}
+				sw += 1 / s2
+				swr += e[k] / dt / s2
+			}
+			if !same {
+				continue
+			}
+			mean := swr / sw
+			steady := true
+			for k := a; k <= b && steady; k++ {
+				dt := t[k+1] - t[k]
+				s := math.Sqrt(v[k]+excess*excess) / dt
+				steady = math.Abs(e[k]/dt-mean) <= kz*s
+			}
+			if steady {
+				return true
+			}
+		}
+	}
+	return false
+}
+
+// phasorFreqK is the number of sigmas by which two groups' frequencies
+// must differ for their phases not to be compared.
+const phasorFreqK = 4
+
+// mixedFrequency reports whether the stations u[lo..hi] were demodulated
+// at different frequencies by their groups' own estimates: a group fitted
+// with a phase ramp (Station.PhaseRampHz) beside one fitted without, or
+// with another ramp, beyond phasorFreqK sigmas. The phase between such
+// groups turns by their frequency difference times the time between them,
+// which the route's single ramp does not take out, so a phasor step
+// across them is not reported (the magnitude steps stand). Groups all at
+// the one offset (a steadily off frequency) are compared through the
+// route's ramp as before. A group fitted without a ramp is taken at the
+// frequency demodulated at, with the sigma of the ramped group it is
+// compared with.
+func mixedFrequency(u []*Placed, lo, hi int) bool {
+	for a := lo; a <= hi; a++ {
+		for b := a + 1; b <= hi; b++ {
+			p, q := u[a], u[b]
+			if p.PhaseRampHz == 0 && q.PhaseRampHz == 0 {
+				continue
+			}
+			sp, sq := p.PhaseRampSigmaHz, q.PhaseRampSigmaHz
+			if p.PhaseRampHz == 0 {
+				sp = sq
+			}
+			if q.PhaseRampHz == 0 {
+				sq = sp
+			}
+			if math.Abs(p.PhaseRampHz-q.PhaseRampHz) > phasorFreqK*math.Hypot(sp, sq) {
+				return true
+			}
+		}
+	}
+	return false
 }
 
 // phasorFit is the transition model fitted to the phasors of a run's

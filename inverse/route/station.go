@@ -35,6 +35,12 @@ type Station struct {
 	// (degrees), with PhaseSigma.
 	AC                bool
 	Phase, PhaseSigma float64
+	// PhaseRampHz, when not zero, is the frequency offset, Hz, of the
+	// phase ramp the station's group was fitted with (the AC frequency
+	// differed from the one demodulated at), and PhaseRampSigmaHz its
+	// one-sigma; the phasor step search does not compare phases across
+	// stations whose frequencies differ (phasorstep.go).
+	PhaseRampHz, PhaseRampSigmaHz float64
 	// PairNet is true when Current is a go-and-return pair's net current
 	// (the sum of its cores' currents, the current that does not return
 	// through the pair) rather than one conductor's. A step in it is
