@@ -151,3 +151,31 @@ func TestTurnOrMirrorRankedByRoute(t *testing.T) {
 		t.Errorf("read with --field-axes n,e,u: steps %q, want the one between T13 and T14", steps)
 	}
 }
+
+// TestOffQuarterTurnSteepNamedMeasured: at a dip of 83° (Harrow Fen's line
+// under the field -150, 5500, -45100 nT) a sensor turned 80° or 100°
+// anticlockwise was named a quarter turn, --mount-yaw 90: read back by it
+// the field is within 1.2° of the base's, each traverse fits to its noise
+// (a line crossed 10° off square gives the same profile), and followed it
+// gave 24.62 A against the simulated 25 A, every azimuth 10° off (found in
+// review). The turn itself must be named, in either sense, and followed it
+// must give back the truth.
+func TestOffQuarterTurnSteepNamedMeasured(t *testing.T) {
+	dir := t.TempDir()
+	log, base, truth := simulateField(t, dir, "steep", "[-150.0, 5500.0, -45100.0]")
+	for i, deg := range []float64{80, 100, -80, -100} {
+		sn, cs := math.Sincos(deg * math.Pi / 180)
+		bad := filepath.Join(dir, "turn"+string(rune('a'+i))+".csv")
+		remapFieldLog(t, log, bad, func(v [3]float64) [3]float64 { return [3]float64{cs*v[0] - sn*v[1], sn*v[0] + cs*v[1], v[2]} })
+		w := baseWarning(locateGrouped(t, "--reference-z", "0", "--base", base, bad))
+		yaw, ok := warningNumber([]string{w}, mountYawRE)
+		if !ok || math.Abs(yaw-deg) > 1 {
+			t.Errorf("turned %g°: want --mount-yaw %g (within 1°) offered: %q", deg, deg, w)
+			continue
+		}
+		if i == 0 {
+			fixed := locateGrouped(t, "--reference-z", "0", "--base", base, "--mount-yaw", tenths(yaw), bad)
+			checkTruth(t, "turned 80° read with --mount-yaw "+tenths(yaw), fixed, truth)
+		}
+	}
+}

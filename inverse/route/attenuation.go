@@ -509,14 +509,22 @@ func attenuationFinding(u []*Placed, isStep []bool, set *Settings) (Finding, boo
 	if len(how) > 0 {
 		steps = " (" + strings.Join(how, "; ") + ")"
 	}
+	// Where the message gives the rate per 100 m, it gives the values'
+	// per km beside it: one row read "29.99 ± 0.14% per 100 m" beside a
+	// value of 97.172 ± 0.058 %/km, the same fall compounded over 1 km
+	// (found in review).
+	perKm := ""
+	if unit != "km" {
+		perKm = fmt.Sprintf("; compounded over 1 km, the values' unit: %s%% and %s dB per km", pm(math.Abs(pctKm), spctKm), pm(math.Abs(dbKm), sdbKm))
+	}
 	return Finding{
 		Kind:     KindAttenuation,
 		Severity: SeverityInfo,
 		From:     first.Chainage, To: last.Chainage,
 		Position: pointAt(u, (first.Chainage+last.Chainage)/2), // on the route, midway
 		Keys:     []string{first.Key, last.Key},
-		Message: fmt.Sprintf("%s %s steadily along the route, by %s%% per %s (%s dB per %s, the current's ratio) from %s to %s, fitted as an exponential%s: %s",
-			subject, verb, pm(math.Abs(pct), spct), unit, pm(math.Abs(db), sdb), unit, first.Key, last.Key, steps, what),
+		Message: fmt.Sprintf("%s %s steadily along the route, by %s%% per %s (%s dB per %s, the current's ratio%s) from %s to %s, fitted as an exponential%s: %s",
+			subject, verb, pm(math.Abs(pct), spct), unit, pm(math.Abs(db), sdb), unit, perKm, first.Key, last.Key, steps, what),
 		// Both named "attenuation", told apart by their units (the
 		// GeoJSON properties attenuation_pct_per_km and
 		// attenuation_db_per_km).

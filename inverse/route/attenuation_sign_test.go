@@ -140,6 +140,13 @@ func TestAttenuationPerKmOnShortRoute(t *testing.T) {
 		if !strings.Contains(att[0].Message, "per 100 m") {
 			t.Errorf("seed %d: a short route's rate not worded per 100 m: %s", seed, att[0].Message)
 		}
+		// The message words the rate per 100 m, the values per km: it
+		// must give the values' figures too, or one row reads 26% per
+		// 100 m beside 95% per km (found in review).
+		v := att[0].Values
+		if want := pm(math.Abs(v[0].Value), v[0].Sigma) + "% and " + pm(math.Abs(v[1].Value), v[1].Sigma) + " dB per km"; !strings.Contains(att[0].Message, want) {
+			t.Errorf("seed %d: the values' per-km figures (%s) not in the message: %s", seed, want, att[0].Message)
+		}
 		checkAttenuation(t, seed, att[0], 100*(1-math.Exp(-3)), 3*20/math.Ln10)
 	}
 }
