@@ -7,6 +7,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"maps"
 	"math/rand/v2"
 	"net"
 	"os"
@@ -229,13 +230,37 @@ func (e *BoundError) Unwrap() error { return e.Err }
 // it), and no bound when the store cannot reserve even that. cfg.MaxBytes
 // is left as applied.
 func defaultDeadLetterBound(ctx context.Context, js jetstream.JetStream, cfg *jetstream.StreamConfig, want, floor int64) error {
+	// serve processes starting together each find the bound. Their probes
+	// of one stream take each other's room (a probe of four times the
+	// bound held by one made another's fail), so they could settle on
+	// different bounds (32 and 64 MiB on a store that had room for the
+	// larger). A new stream is therefore probed with create-only requests:
+	// the process whose create succeeds finds the bound and marks the
+	// stream with it (deadLetterBoundKey), and one whose create meets the
+	// stream made meanwhile waits for that mark and takes the bound.
+	lctx, cancel := context.WithTimeout(ctx, attemptTimeout)
+	_, err := js.Stream(lctx, cfg.Name)
+	cancel()
+	if errors.Is(err, jetstream.ErrStreamNotFound) {
+		done, err := createDeadLetterBound(ctx, js, cfg, want, floor)
+		if done || err != nil {
+			return err
+		}
+	} else if err == nil {
+		// A stream that stands: one another Setup is probing or has
+		// marked (with the same aim) is taken as that Setup leaves it.
+		done, err := adoptDeadLetterBound(ctx, js, cfg, want, floor)
+		if done || err != nil {
+			return err
+		}
+	}
 	for try := 4 * max(want, floor); ; try /= 2 {
 		try = max(try, floor)
 		cfg.MaxBytes = try
 		err := createOrUpdateStream(ctx, js, *cfg)
 		if err == nil {
 			cfg.MaxBytes = max(try/4, floor)
-			return createOrUpdateStream(ctx, js, *cfg)
+			return createOrUpdateStream(ctx, js, markDeadLetterBound(*cfg, want, floor))
 		}
 		if !insufficientStorage(err) {
 			return err
@@ -245,7 +270,111 @@ func defaultDeadLetterBound(ctx context.Context, js jetstream.JetStream, cfg *je
 		}
 	}
 	cfg.MaxBytes = -1
-	return createOrUpdateStream(ctx, js, *cfg)
+	return createOrUpdateStream(ctx, js, markDeadLetterBound(*cfg, want, floor))
+}
+
+// deadLetterBoundKey marks the dead-letter stream whose bound Setup has
+// found (see defaultDeadLetterBound).
+const deadLetterBoundKey = "undercurrent.dead_letter_bound"
+
+// markDeadLetterBound returns cfg with the mark of a found bound: the
+// bound, and the aim and floor it was found for.
+func markDeadLetterBound(cfg jetstream.StreamConfig, want, floor int64) jetstream.StreamConfig {
+	md := make(map[string]string, len(cfg.Metadata)+1)
+	maps.Copy(md, cfg.Metadata)
+	md[deadLetterBoundKey] = fmt.Sprintf("%d %d %d", cfg.MaxBytes, want, floor)
+	cfg.Metadata = md
+	return cfg
+}
+
+// createDeadLetterBound probes a new dead-letter stream's bound with
+// create-only requests (see defaultDeadLetterBound). It reports done when
+// the stream stands with a found bound in cfg.MaxBytes, its own or that of
+// the process that made it meanwhile; not done when the stream was made
+// meanwhile and no mark came in deadLetterMarkWait (a Setup of an earlier
+// version), for the caller to probe it by updates.
+func createDeadLetterBound(ctx context.Context, js jetstream.JetStream, cfg *jetstream.StreamConfig, want, floor int64) (bool, error) {
+	for try := 4 * max(want, floor); ; try /= 2 {
+		try = max(try, floor)
+		probe := *cfg
+		probe.MaxBytes = try
+		_, err := createOnly(ctx, js, probe)
+		if noAnswer(err) {
+			// A create that goes unanswered on a cluster (see retrying):
+			// whether it made the stream is not known, so the bound is
+			// probed by updates as for a stream that stands.
+			return false, nil
+		}
+		if err == nil {
+			cfg.MaxBytes = max(try/4, floor)
+			return true, createOrUpdateStream(ctx, js, markDeadLetterBound(*cfg, want, floor))
+		}
+		if errors.Is(err, jetstream.ErrStreamNameAlreadyInUse) {
+			return adoptDeadLetterBound(ctx, js, cfg, want, floor)
+		}
+		if !insufficientStorage(err) {
+			return false, err
+		}
+		if try == floor {
+			probe.MaxBytes = -1
+			if _, err := createOnly(ctx, js, probe); err != nil {
+				if noAnswer(err) {
+					return false, nil
+				}
+				if errors.Is(err, jetstream.ErrStreamNameAlreadyInUse) {
+					return adoptDeadLetterBound(ctx, js, cfg, want, floor)
+				}
+				return false, err
+			}
+			cfg.MaxBytes = -1
+			return true, createOrUpdateStream(ctx, js, markDeadLetterBound(*cfg, want, floor))
+		}
+	}
+}
+
+// createOnly is js.CreateStream with one attempt's time (attemptTimeout).
+func createOnly(ctx context.Context, js jetstream.JetStream, cfg jetstream.StreamConfig) (jetstream.Stream, error) {
+	actx, cancel := context.WithTimeout(ctx, attemptTimeout)
+	defer cancel()
+	return js.CreateStream(actx, cfg)
+}
+
+// deadLetterMarkWait bounds the wait for another process's found bound.
+const deadLetterMarkWait = 10 * time.Second
+
+// adoptDeadLetterBound waits, up to deadLetterMarkWait, for the mark of
+// the bound another Setup found for the same aim and floor, and takes that
+// bound (done). Not done when no such mark comes: a stream left by an
+// earlier version or found for another aim, for the caller to probe.
+func adoptDeadLetterBound(ctx context.Context, js jetstream.JetStream, cfg *jetstream.StreamConfig, want, floor int64) (bool, error) {
+	wctx, cancel := context.WithTimeout(ctx, deadLetterMarkWait)
+	defer cancel()
+	for {
+		actx, acancel := context.WithTimeout(wctx, attemptTimeout)
+		st, err := js.Stream(actx, cfg.Name)
+		acancel()
+		if err == nil {
+			c := st.CachedInfo().Config
+			var b, w, f int64
+			if v, ok := c.Metadata[deadLetterBoundKey]; ok {
+				if n, _ := fmt.Sscanf(v, "%d %d %d", &b, &w, &f); n == 3 && b == c.MaxBytes {
+					if w != want || f != floor {
+						return false, nil
+					}
+					cfg.MaxBytes = b
+					return true, createOrUpdateStream(ctx, js, markDeadLetterBound(*cfg, want, floor))
+				}
+			}
+		}
+		select {
+		case <-wctx.Done():
+			if ctx.Err() != nil {
+				return false, ctx.Err()
+			}
+			return false, nil
+		case <-time.After(50 * time.Millisecond):
+		}
+	}
 }
 
 // errCodeStreamNameInUse is the JetStream API error code of a stream
