@@ -6,8 +6,6 @@ import (
 	"math/rand/v2"
 	"testing"
 	"time"
-
-	"undercurrent/inverse"
 )
 
 // synthACWindowVarying builds one AC window of samples for asset a whose
@@ -21,11 +19,7 @@ import (
 func synthACWindowVarying(a *AssetConfig, cur func(t float64) []complex128, freq, harm3, harm5, t0, rate float64, n int, noise float64, rng *rand.Rand) *window {
 	w := &window{Start: t0, End: t0 + float64(n)/rate, Sensors: make([]series, len(a.Sensors)), Closed: time.Now(), Reason: "complete"}
 	for si, s := range a.Sensors {
-		var per [][3]float64
-		for _, c := range a.Conductors {
-			f := inverse.Line{Point: c.Point, Dir: c.Direction}.Field(s.Position, 1)
-			per = append(per, [3]float64{f[0] * 1e9, f[1] * 1e9, f[2] * 1e9})
-		}
+		per := unitFieldsNT(a, s.Position)
 		R := orientation(s.Orientation)
 		sr := &w.Sensors[si]
 		for i := range n {

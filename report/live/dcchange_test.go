@@ -5,8 +5,6 @@ import (
 	"math/rand/v2"
 	"testing"
 	"time"
-
-	"undercurrent/inverse"
 )
 
 // synthDCWindowVarying builds one DC window of samples for asset a whose
@@ -25,11 +23,7 @@ func synthDCWindowVarying(a *AssetConfig, cur func(t float64) []float64, bg func
 		}
 	}
 	for si, s := range a.Sensors {
-		var per [][3]float64
-		for _, c := range a.Conductors {
-			f := inverse.Line{Point: c.Point, Dir: c.Direction}.Field(s.Position, 1)
-			per = append(per, [3]float64{f[0] * 1e9, f[1] * 1e9, f[2] * 1e9})
-		}
+		per := unitFieldsNT(a, s.Position)
 		R := orientation(s.Orientation)
 		sr := &w.Sensors[si]
 		for i := range n {

@@ -20,12 +20,7 @@ import (
 func synthWindow(a *AssetConfig, cur []complex128, bg [3]float64, t0 float64, rate float64, n int, noise float64, rng *rand.Rand) *window {
 	w := &window{Start: t0, End: t0 + float64(n)/rate, Sensors: make([]series, len(a.Sensors)), Closed: time.Now(), Reason: "complete"}
 	for si, s := range a.Sensors {
-		// Unit-current fields at the sensor, nT.
-		var per [][3]float64
-		for _, c := range a.Conductors {
-			f := inverse.Line{Point: c.Point, Dir: c.Direction}.Field(s.Position, 1)
-			per = append(per, [3]float64{f[0] * 1e9, f[1] * 1e9, f[2] * 1e9})
-		}
+		per := unitFieldsNT(a, s.Position)
 		R := orientation(s.Orientation)
 		sr := &w.Sensors[si]
 		for i := 0; i < n; i++ {
@@ -171,4 +166,16 @@ func BenchmarkWindow100Sensors1kHz(b *testing.B) {
 			}
 		})
 	}
+}
+
+// unitFieldsNT returns the field (nT, ENU) of one ampere in each of a's
+// conductors at pos: the inverse package's Biot-Savart line field
+// (Line.Field, checked there against the DOMAIN.md values).
+func unitFieldsNT(a *AssetConfig, pos [3]float64) [][3]float64 {
+	var per [][3]float64
+	for _, c := range a.Conductors {
+		f := inverse.Line{Point: c.Point, Dir: c.Direction}.Field(pos, 1)
+		per = append(per, [3]float64{f[0] * 1e9, f[1] * 1e9, f[2] * 1e9})
+	}
+	return per
 }
