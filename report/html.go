@@ -897,6 +897,21 @@ func ChainageZero(d *Document) string {
 	}
 	r := d.Route
 	first, last := r.Stations[0], r.Stations[len(r.Stations)-1]
+	// On a route walked again the last station is one of the last
+	// traverse's repeats, in the order of the walks (route.Build): the
+	// route runs towards the first walk's, as it starts at the first
+	// walk's.
+	var used []float64
+	for _, s := range r.Stations {
+		if s.Used {
+			used = append(used, s.Chainage)
+		}
+	}
+	gap := route.RepeatGapAlong(used)
+	end := last.Chainage
+	for k := len(r.Stations) - 2; k >= 0 && r.Stations[k].Chainage > end-gap; k-- {
+		last = r.Stations[k]
+	}
 	u := first // the first used station (routeStart found one)
 	for _, s := range r.Stations {
 		if s.Used {

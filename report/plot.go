@@ -18,6 +18,8 @@ import (
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 	"gonum.org/v1/plot/vg/vgsvg"
+
+	"undercurrent/inverse/route"
 )
 
 // The report's palette: neutral inks, one blue-green for fitted results,
@@ -763,10 +765,18 @@ func startBoxes(p, u [2]float64) []ptBox {
 // routeStart is the place of chainage 0 on the fitted route and the unit
 // direction, east and north, in which chainage increases from there: the
 // first used station (Station.Used) and the direction towards the next
-// used one at a distinct place (its own direction if there is none), with
-// chainage 0 taken back along that direction by the station's chainage
-// when stations before it were left out. ok is false without a route of
-// two stations or more, or without a used station.
+// used one that is not its repeat (its own direction if there is none),
+// with chainage 0 taken back along that direction by the station's
+// chainage when stations before it were left out. ok is false without a
+// route of two stations or more, or without a used station.
+//
+// A repeat is a station closer along the route than the route's repeat
+// distance (route.RepeatGapAlong: a route walked again, the same
+// traverse's crossing by the other walk, millimetres away). The bearing
+// had been taken to the first station's own repeat, 1.4 mm off across
+// the traverse, so on a route running east the summary said chainage
+// set off 177° from north and the plan's arrow pointed across the route
+// (found in review).
 func routeStart(d *Document) (at, dir [2]float64, ok bool) {
 	r := d.Route
 	if r == nil || len(r.Stations) < 2 {
@@ -788,8 +798,15 @@ func routeStart(d *Document) (at, dir [2]float64, ok bool) {
 	}
 	s0 := r.Stations[first]
 	p0 := [2]float64{s0.Point[0], s0.Point[1]}
+	var used []float64
+	for _, st := range r.Stations {
+		if st.Used {
+			used = append(used, st.Chainage)
+		}
+	}
+	gap := route.RepeatGapAlong(used)
 	for _, st := range r.Stations[first+1:] {
-		if !st.Used {
+		if !st.Used || st.Chainage-s0.Chainage < gap {
 			continue
 		}
 		dx, dy := st.Point[0]-p0[0], st.Point[1]-p0[1]

@@ -66,13 +66,7 @@ func splitRewalkedGroups(logs []string, all []*ingest.Samples) ([]string, map[st
 			}
 			rows[v] = append(rows[v], i)
 		}
-		type split struct {
-			value string
-			names []string
-			times []float64 // each walk's first reading
-			pause float64   // the shortest pause before a new walk, s
-		}
-		var splits []split
+		var splits []rewalkSplit
 		for _, v := range order {
 			idx := rows[v]
 			// Runs cut at pauses over reusedApartS.
@@ -102,7 +96,7 @@ func splitRewalkedGroups(logs []string, all []*ingest.Samples) ([]string, map[st
 			walks := []*walk{{at: partOf(runs[0]), name: v}}
 			which := make([]*walk, len(runs))
 			which[0] = walks[0]
-			sp := split{value: v, names: []string{v}, times: []float64{s.Time[runs[0][0]]}, pause: math.Inf(1)}
+			sp := rewalkSplit{value: v, names: []string{v}, times: []float64{s.Time[runs[0][0]]}, pause: math.Inf(1)}
 			for j := 1; j < len(runs); j++ {
 				p := partOf(runs[j])
 				long := math.Hypot(p.span.maxX-p.span.minX, p.span.maxY-p.span.minY) >= rewalkMinLengthM
@@ -146,20 +140,88 @@ func splitRewalkedGroups(logs []string, all []*ingest.Samples) ([]string, map[st
 				splits = append(splits, sp)
 			}
 		}
-		for _, sp := range splits {
-			var when []string
-			for j, t := range sp.times {
-				w := sp.names[j]
-				if calendarTime(t) {
-					w += " from " + fmtBaseTime(t)
-				}
-				when = append(when, w)
-			}
-			warns = append(warns, fmt.Sprintf("%s: the group %s covers the same ground again after a pause of %s: taken for the traverse walked again, and fitted walk by walk (%s); the walks lie at one station and their currents are compared (walks-differ). A group's readings that cover the same ground again more than %g s after the ones before are another walk, as in several logs (a traverse continued after a pause, or walked out and back without one, is one walk)",
-				logs[k], sp.value, rangeText(sp.pause, sp.pause, "s"), joinAnd(when), reusedApartS))
+		if w := rewalkWarning(logs[k], splits); w != "" {
+			warns = append(warns, w)
 		}
 	}
 	return warns, walkNo
+}
+
+// rewalkSplit is a group value of one log whose traverse was walked
+// again: the value, its walks' names (the first the value itself), each
+// walk's first reading's time and the shortest pause before a new walk, s.
+type rewalkSplit struct {
+	value string
+	names []string
+	times []float64
+	pause float64
+}
+
+// rewalkWarning is the one warning for the groups of the log path walked
+// again (splits, in the log's order of groups): for one group, its pause
+// and when each walk began; for several, the groups (the first six and
+// how many more past eight), the range of the pauses, the names of the
+// later walks and when the first, second, ... walks began (each the
+// earliest over the groups). A day walked again in one log had drawn one
+// such warning per traverse, 21 alike, where the same survey in two logs
+// draws one (nameReusedGroups; found in review). Empty without splits.
+func rewalkWarning(path string, splits []rewalkSplit) string {
+	const rule = "A group's readings that cover the same ground again more than %g s after the ones before are another walk, as in several logs (a traverse continued after a pause, or walked out and back without one, is one walk)"
+	switch len(splits) {
+	case 0:
+		return ""
+	case 1:
+		sp := splits[0]
+		var when []string
+		for j, t := range sp.times {
+			w := sp.names[j]
+			if calendarTime(t) {
+				w += " from " + fmtBaseTime(t)
+			}
+			when = append(when, w)
+		}
+		return fmt.Sprintf("%s: the group %s covers the same ground again after a pause of %s: taken for the traverse walked again, and fitted walk by walk (%s); the walks lie at one station and their currents are compared (walks-differ). "+rule,
+			path, sp.value, rangeText(sp.pause, sp.pause, "s"), joinAnd(when), reusedApartS)
+	}
+	var values []string
+	lo, hi := math.Inf(1), math.Inf(-1)
+	var first []float64 // each walk's earliest first reading over the groups
+	timed := true
+	for _, sp := range splits {
+		values = append(values, sp.value)
+		lo, hi = math.Min(lo, sp.pause), math.Max(hi, sp.pause)
+		for j, t := range sp.times {
+			if !calendarTime(t) {
+				timed = false
+			}
+			if j >= len(first) {
+				first = append(first, t)
+			} else {
+				first[j] = math.Min(first[j], t)
+			}
+		}
+	}
+	named := fmt.Sprintf("named %s (and so on)", splits[0].names[1])
+	began := ""
+	if timed {
+		var when []string
+		for j, t := range first {
+			when = append(when, fmt.Sprintf("the %s from %s", walksOrdinal(j), fmtBaseTime(t)))
+		}
+		began = fmt.Sprintf(" (%s: each the earliest over the groups)", joinAnd(when))
+	}
+	return fmt.Sprintf("%s: the groups %s cover the same ground again after pauses of %s: taken for the traverses walked again%s, and each walk fitted as a group of its own, %s; the walks of each traverse lie at one station and their currents are compared (walks-differ). "+rule,
+		path, listNames(values), rangeText(lo, hi, "s"), began, named, reusedApartS)
+}
+
+// walksOrdinal names the walks k (from 0) of the traverses: "first
+// walks".
+func walksOrdinal(k int) string {
+	names := []string{"first walks", "second walks", "third walks", "fourth walks", "fifth walks"}
+	if k < len(names) {
+		return names[k]
+	}
+	return fmt.Sprintf("walks %d", k+1)
 }
 
 // rewalkKey keys a renamed walk by its log and name.

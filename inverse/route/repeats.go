@@ -45,16 +45,27 @@ const repeatFrac = 0.1
 // the intervals of no length between repeats (half of them on a route
 // walked twice) do not set it; zero with fewer than two usable stations.
 func repeatSpacing(ps []Placed) float64 {
-	var d []float64
-	prev := -1
+	var c []float64
 	for k := range ps {
-		if !ps[k].usable() {
-			continue
+		if ps[k].usable() {
+			c = append(c, ps[k].Chainage)
 		}
-		if prev >= 0 {
-			d = append(d, ps[k].Chainage-ps[prev].Chainage)
-		}
-		prev = k
+	}
+	return spacingOf(c)
+}
+
+// RepeatGapAlong is the chainage within which stations are repeats of one
+// station (repeatGap), m, for the chainages c, m, of a route's usable
+// stations in route order (a report's route, whose stations no longer
+// carry their fits); zero when there are none to tell.
+func RepeatGapAlong(c []float64) float64 { return repeatFrac * spacingOf(c) }
+
+// spacingOf is repeatSpacing for the chainages c of the usable stations
+// in route order.
+func spacingOf(c []float64) float64 {
+	var d []float64
+	for k := 1; k < len(c); k++ {
+		d = append(d, c[k]-c[k-1])
 	}
 	if len(d) == 0 {
 		return 0
@@ -84,6 +95,33 @@ func (r *Route) RepeatGap() float64 { return repeatGap(r.Stations) }
 // repeatGap is the chainage within which stations of ps are repeats of one
 // station (repeatFrac of repeatSpacing), m.
 func repeatGap(ps []Placed) float64 { return repeatFrac * repeatSpacing(ps) }
+
+// walkOrder puts the stations of each run of repeats of ps (route order;
+// runs of stations less than gap apart along the route, see repeatRuns)
+// in the caller's order (Index), the order of the walks when the caller
+// puts groups in time order, as it does for several logs and for a
+// traverse walked again in one log. The chaining put a run's stations in
+// whatever order made the shortest path, so a later walk's station, a
+// millimetre nearer the route's end, could come first: chainage 0 was
+// named at the later walk's traverse, against what the README says
+// (found in review). It reports whether any run changed; the caller then
+// measures the chainage again.
+func walkOrder(ps []Placed, gap float64) bool {
+	if gap <= 0 {
+		return false
+	}
+	changed := false
+	repeatRuns(ps, gap, func(i, j int, _ []*Placed) {
+		run := ps[i:j]
+		less := func(a, b int) bool { return run[a].Index < run[b].Index }
+		if len(run) < 2 || sort.SliceIsSorted(run, less) {
+			return
+		}
+		sort.SliceStable(run, less)
+		changed = true
+	})
+	return changed
+}
 
 // combineRepeats returns ps (route order) with each set of repeats (runs
 // of successive stations less than gap apart along the route from the

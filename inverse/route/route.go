@@ -86,6 +86,11 @@ func Build(stations []Station, set *Settings) (*Route, error) {
 		r.Stations[k].CurrentSigma = floorSigma(&stations[idx])
 	}
 	measure(r.Stations)
+	// Repeats of a station (a route walked again) in the order of the
+	// walks, so that chainage runs from the first walk's (repeats.go).
+	if walkOrder(r.Stations, repeatGap(r.Stations)) {
+		measure(r.Stations)
+	}
 	gap := repeatGap(r.Stations)
 	orient(r.Stations, gap)
 	cornerChainage(r.Stations, set)
