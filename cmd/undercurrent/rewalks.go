@@ -20,8 +20,10 @@ import (
 // several-logs rule within each log: a group's readings are cut at pauses
 // longer than reusedApartS between its successive readings, and a run
 // that covers the same ground again (sameGround, within reusedApartM) as
-// an earlier walk of the group, and lies together with none, is a walk of
-// its own, renamed VALUE (walk N). A traverse continued after a pause
+// an earlier walk of the group, at its station (on its line:
+// rewalkstation.go), and lies together with none, is a walk of its own,
+// renamed VALUE (walk N); one beside the line is another traverse under
+// the same name, VALUE (line N). A traverse continued after a pause
 // (end to end) stays one walk, and one walked out and back without a
 // pause is never cut. The walks then lie at one chainage and are
 // compared as repeats (walks-differ).
@@ -94,6 +96,7 @@ func splitRewalkedGroups(logs []string, all []*ingest.Samples) ([]string, map[st
 				name string
 			}
 			walks := []*walk{{at: partOf(runs[0]), name: v}}
+			var lines []*walk // traverses beside the first walk given its name
 			which := make([]*walk, len(runs))
 			which[0] = walks[0]
 			sp := rewalkSplit{value: v, names: []string{v}, times: []float64{s.Time[runs[0][0]]}, pause: math.Inf(1)}
@@ -101,17 +104,45 @@ func splitRewalkedGroups(logs []string, all []*ingest.Samples) ([]string, map[st
 				p := partOf(runs[j])
 				long := math.Hypot(p.span.maxX-p.span.minX, p.span.maxY-p.span.minY) >= rewalkMinLengthM
 				var in *walk
-				again := false
+				again, beside := false, -1.0
+				spacing := 0.0
 				for _, w := range walks {
 					if together(w.at, p) {
 						in = w
 						break
 					}
 					if d, _ := w.at.span.apart(p.span); d <= reusedApartM {
-						again = true // the same ground again, after the pause
+						// The same ground again, after the pause: a walk
+						// again at w's station, or another traverse
+						// beside it (rewalkstation.go).
+						if at, off, nearest := rewalkStation(w.at, p, s, rows, v); at {
+							again = true
+						} else if beside < 0 {
+							beside, spacing = off, nearest
+						}
 					}
 				}
-				if in == nil && (!again || !long || len(runs[j]) < rewalkMinReadings) {
+				for _, w := range lines {
+					if in != nil || again {
+						break
+					}
+					if at, _, _ := rewalkStation(w.at, p, s, rows, v); at || together(w.at, p) {
+						in = w // the traverse beside, continued or walked again
+					}
+				}
+				short := !long || len(runs[j]) < rewalkMinReadings
+				if in == nil && !again && beside >= 0 && !short {
+					name := rewalkLineName(v, len(lines)+2)
+					for n := len(lines) + 3; taken[name]; n++ {
+						name = rewalkLineName(v, n)
+					}
+					taken[name] = true
+					in = &walk{at: &logPart{log: k, span: newReadingSpan()}, name: name}
+					lines = append(lines, in)
+					pause := s.Time[runs[j][0]] - s.Time[runs[j-1][len(runs[j-1])-1]]
+					warns = append(warns, mislabelWarning(logs[k], v, name, beside, spacing, pause, s.Time[runs[j][0]]))
+				}
+				if in == nil && (!again || short) {
 					in = which[j-1] // elsewhere, or too short to be a walk: left as before
 				}
 				if in == nil {
