@@ -102,12 +102,12 @@ README.md):
 			fs.Lookup("time-order").DefValue = "per-group"
 		},
 		run: func(ctx context.Context, fs *pflag.FlagSet, args []string, stdout, stderr io.Writer) error {
-			return runReplay(ctx, &o, fs, args, stdout)
+			return runReplay(ctx, &o, fs, args, stdout, stderr)
 		},
 	})
 }
 
-func runReplay(ctx context.Context, o *replayOptions, fs *pflag.FlagSet, args []string, stdout io.Writer) error {
+func runReplay(ctx context.Context, o *replayOptions, fs *pflag.FlagSet, args []string, stdout, stderr io.Writer) error {
 	if len(args) != 1 {
 		return usageErrorf("replay takes one LOG, got %s", plural(len(args), "argument"))
 	}
@@ -140,7 +140,8 @@ func runReplay(ctx context.Context, o *replayOptions, fs *pflag.FlagSet, args []
 	if err := checkBatchBytes(args[0], batches, o.format, o.maxBytes, o.batch); err != nil {
 		return err
 	}
-	set := &broker.ReplaySettings{Speed: o.speed, Encoding: enc, Shift: o.shift, MaxAhead: o.maxAhead}
+	set := &broker.ReplaySettings{Speed: o.speed, Encoding: enc, Shift: o.shift, MaxAhead: o.maxAhead,
+		Notify: func(msg string) { fmt.Fprintf(stderr, "replay: %s\n", msg) }}
 	if o.maxAhead > 2*replayAheadMargin {
 		set.MaxAhead = o.maxAhead - replayAheadMargin
 	}

@@ -126,6 +126,7 @@ func runServe(ctx context.Context, o *serveOptions, args []string, stderr io.Wri
 		auth.Token = o.token
 	}
 	url := o.broker
+	var storeBytes int64
 	if url == "" {
 		if err := site.CheckEmbeddedBroker(); err != nil {
 			return err
@@ -142,6 +143,7 @@ func runServe(ctx context.Context, o *serveOptions, args []string, stderr io.Wri
 		}
 		defer srv.Shutdown()
 		url = srv.ClientURL()
+		storeBytes = srv.MaxStore()
 		log.Info("embedded broker started", "nats", url, "mqtt", srv.MQTTAddr(), "store", o.data)
 		gctx, gcancel := context.WithCancel(ctx)
 		defer gcancel()
@@ -152,7 +154,7 @@ func runServe(ctx context.Context, o *serveOptions, args []string, stderr io.Wri
 		return err
 	}
 	defer nc.Close()
-	svc, err := live.New(live.Config{Site: site, Conn: nc, Worker: o.worker, HTTP: o.http, Logger: log})
+	svc, err := live.New(live.Config{Site: site, Conn: nc, Worker: o.worker, HTTP: o.http, Logger: log, External: o.broker != "", StoreBytes: storeBytes})
 	if err != nil {
 		return err
 	}

@@ -32,6 +32,12 @@ const (
 // time, sent again with other batch edges) is stored. enc is ContentJSON
 // or ContentArrow.
 func PublishBatch(ctx context.Context, js jetstream.JetStream, b *Batch, enc string) (*jetstream.PubAck, error) {
+	return publishBatch(ctx, js, b, enc, nil)
+}
+
+// publishBatch is PublishBatch, calling retry (when not nil) before each
+// try again after a publish that got no answer.
+func publishBatch(ctx context.Context, js jetstream.JetStream, b *Batch, enc string, retry func(err error)) (*jetstream.PubAck, error) {
 	var data []byte
 	var err error
 	switch enc {
@@ -65,6 +71,9 @@ func PublishBatch(ctx context.Context, js jetstream.JetStream, b *Batch, enc str
 		if ctx.Err() != nil || !publishRetryable(err) || time.Now().Add(wait).After(deadline) {
 			return nil, fmt.Errorf("broker: publish %s: %w", msg.Subject, err)
 		}
+		if retry != nil {
+			retry(err)
+		}
 		select {
 		case <-ctx.Done():
 			return nil, fmt.Errorf("broker: publish %s: %w", msg.Subject, ctx.Err())
@@ -97,8 +106,8 @@ func BatchID(b *Batch) string {
 
 // publishAttempt bounds one publish attempt; publishRetryFor the time
 // PublishBatch goes on trying, well within the data stream's two-minute
-// deduplication window.
-const (
+// deduplication window. Variables only so that a test can shorten them.
+var (
 	publishAttempt  = 5 * time.Second
 	publishRetryFor = 30 * time.Second
 )

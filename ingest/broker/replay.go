@@ -145,6 +145,9 @@ type ReplaySettings struct {
 	Shift float64
 	// Progress, when set, is called after each acknowledged batch.
 	Progress func(done, total int)
+	// Notify, when set, is told once when the broker stops answering a
+	// batch's publish (it is tried again for up to 30 s).
+	Notify func(msg string)
 	// MaxAhead, when positive, holds back a batch whose last time (after
 	// Shift) is more than MaxAhead ahead of the wall clock until it is
 	// not: a pipeline refuses batches too far ahead of its clock (a
@@ -211,8 +214,21 @@ func Replay(ctx context.Context, js jetstream.JetStream, batches []*Batch, set *
 			}
 			send = &c
 		}
-		ack, err := PublishBatch(ctx, js, send, rs.Encoding)
+		told := false
+		ack, err := publishBatch(ctx, js, send, rs.Encoding, func(err error) {
+			if !told && rs.Notify != nil {
+				rs.Notify(fmt.Sprintf("no acknowledgement from the broker for batch %d of %d (%v); trying again for up to %v", i+1, len(batches), err, publishRetryFor))
+				told = true
+			}
+		})
 		if err != nil {
+			if ctx.Err() == nil && publishRetryable(err) {
+				stored := "no batch was stored"
+				if st.Batches > 0 {
+					stored = fmt.Sprintf("%d of %d batches were stored, up to time %s", st.Batches, len(batches), timeText(st.To))
+				}
+				err = fmt.Errorf("%w: the broker stopped answering (no acknowledgement in %v); %s; run the same replay again once the broker is back to send the rest (batches stored already are not stored twice)", err, publishRetryFor, stored)
+			}
 			return st, err
 		}
 		st.Batches++

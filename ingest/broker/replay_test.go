@@ -195,3 +195,53 @@ func replaySetup(t *testing.T) (context.Context, jetstream.JetStream, []*Batch) 
 	}
 	return ctx, js, bs
 }
+
+// A replay whose broker stops answering says so when it gives up: how
+// many batches were stored, up to which time, and that the same replay can
+// be run again. It had ended, after 33 s without a word, with only
+// "publish uc.data...: context deadline exceeded". It also says, once, that
+// it is trying again. The batches are invented fixtures (testBatch); what
+// is checked is the project's own messages.
+func TestReplayBrokerGoneSaysWhatWasStored(t *testing.T) {
+	if testing.Short() {
+		t.Skip("starts a broker")
+	}
+	attempt, retryFor := publishAttempt, publishRetryFor
+	publishAttempt, publishRetryFor = 300*time.Millisecond, time.Second
+	t.Cleanup(func() { publishAttempt, publishRetryFor = attempt, retryFor })
+	s := startTestServer(t, ServerConfig{MQTTPort: -1})
+	_, js := connectJS(t, s.ClientURL(), Auth{})
+	ctx, cancel := context.WithTimeout(context.Background(), 30*time.Second)
+	defer cancel()
+	if _, err := Setup(ctx, js, StreamSettings{Memory: true}); err != nil {
+		t.Fatal(err)
+	}
+	var batches []*Batch
+	for i := range 3 {
+		b := testBatch(10)
+		for j := range b.Time {
+			b.Time[j] += float64(i)
+		}
+		batches = append(batches, b)
+	}
+	var notes []string
+	_, err := Replay(ctx, js, batches, &ReplaySettings{
+		Progress: func(done, total int) {
+			if done == 1 {
+				s.Shutdown()
+			}
+		},
+		Notify: func(msg string) { notes = append(notes, msg) },
+	})
+	if err == nil {
+		t.Fatal("the replay succeeded with its broker shut down")
+	}
+	for _, want := range []string{"stopped answering", "1 of 3 batches were stored, up to time 1764650000.009", "run the same replay again"} {
+		if !strings.Contains(err.Error(), want) {
+			t.Errorf("error %q does not say %q", err, want)
+		}
+	}
+	if len(notes) != 1 || !strings.Contains(notes[0], "batch 2 of 3") {
+		t.Errorf("notes %q, want one saying batch 2 of 3 is tried again", notes)
+	}
+}

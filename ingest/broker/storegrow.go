@@ -102,3 +102,14 @@ func (s *Server) setMaxStore(n int64) error {
 	s.opts = &o
 	return nil
 }
+
+// MaxStore is the server's store limit now, bytes (0 when JetStream is
+// not running).
+func (s *Server) MaxStore() int64 {
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	if js := s.ns.JetStreamConfig(); js != nil {
+		return js.MaxStore
+	}
+	return 0
+}

@@ -11,6 +11,7 @@ import (
 	"math/rand/v2"
 	"net"
 	"os"
+	"strconv"
 	"strings"
 	"time"
 
@@ -61,6 +62,15 @@ type StreamSettings struct {
 	LeaseTTL time.Duration
 	// Memory stores everything in memory instead of files (tests only).
 	Memory bool
+	// StoreBytes is the size of the broker's store, bytes, when the
+	// caller knows it (the embedded broker's limit, Server.MaxStore); 0
+	// when not (a cluster). A default dead-letter bound found below its
+	// aim is kept by a later Setup on a store of the same size, and found
+	// again on a store of another size (see adoptDeadLetterBound).
+	StoreBytes int64
+	// Notify, when set, is given a line for the log when Setup waits for
+	// another process (the dead-letter bound another serve is finding).
+	Notify func(msg string)
 }
 
 // DefaultDeadLetterMaxBytes is the dead-letter stream's bound when
@@ -121,9 +131,15 @@ func Setup(ctx context.Context, js jetstream.JetStream, set StreamSettings) (*St
 			cfg.AllowDirect = true
 		}
 		var err error
-		if cfg.Name == StreamDeadLetter && set.DeadLetterMaxBytes == 0 {
-			err = defaultDeadLetterBound(ctx, js, &cfg, cmp.Or(set.DeadLetterDefault, DefaultDeadLetterMaxBytes), cmp.Or(set.DeadLetterMin, MinDeadLetterMaxBytes))
-		} else {
+		var stood deadLetterMark
+		switch {
+		case cfg.Name == StreamDeadLetter && set.DeadLetterMaxBytes == 0:
+			stood = standingDeadLetterMark(ctx, js)
+			err = defaultDeadLetterBound(ctx, js, &cfg, deadLetterAim{want: cmp.Or(set.DeadLetterDefault, DefaultDeadLetterMaxBytes), floor: cmp.Or(set.DeadLetterMin, MinDeadLetterMaxBytes), store: set.StoreBytes}, set.Notify)
+		case cfg.Name == StreamDeadLetter:
+			stood = standingDeadLetterMark(ctx, js)
+			err = createOrUpdateStream(ctx, js, markGivenDeadLetterBound(cfg))
+		default:
 			err = createOrUpdateStream(ctx, js, cfg)
 		}
 		if err != nil {
@@ -134,6 +150,10 @@ func Setup(ctx context.Context, js jetstream.JetStream, set StreamSettings) (*St
 		}
 		if cfg.Name == StreamDeadLetter {
 			st.DeadLetterMaxBytes = max(cfg.MaxBytes, 0)
+			given := set.DeadLetterMaxBytes != 0
+			if stood.ok && (stood.given || given) && (stood.given != given || stood.bound != cfg.MaxBytes) {
+				st.DeadLetterReplaced = &DeadLetterReplaced{Bound: max(stood.bound, 0), Given: stood.given}
+			}
 		}
 	}
 	kvs := []struct {
@@ -165,12 +185,26 @@ type Stores struct {
 	// DeadLetterMaxBytes is the dead-letter stream's bound as applied
 	// (0: none; see StreamSettings.DeadLetterMaxBytes).
 	DeadLetterMaxBytes int64
+	// DeadLetterReplaced, when not nil, is the bound the dead-letter
+	// stream stood with, set otherwise than this Setup set it: a bound
+	// given where this Setup found one, found where this one was given,
+	// or given with another value. serve processes sharing a broker with
+	// different dead-letter settings replace each other's bound (the last
+	// to start sets it), so the caller says so.
+	DeadLetterReplaced *DeadLetterReplaced
 	// KeptReplicas lists the streams and buckets that the broker already
 	// held with more replicas than StreamSettings.Replicas asked for:
 	// Setup never lowers a stream's replicas (a site file left at
 	// replicas = 1 would otherwise take a cluster's data down to one
 	// copy), it keeps the broker's count and says so here.
 	KeptReplicas []KeptReplicas
+}
+
+// DeadLetterReplaced is the bound the dead-letter stream stood with
+// before Setup set another (see Stores.DeadLetterReplaced).
+type DeadLetterReplaced struct {
+	Bound int64 // bytes; 0 for none
+	Given bool  // given in StreamSettings.DeadLetterMaxBytes, not found
 }
 
 // KeptReplicas is a stream (or a bucket's stream, "KV_<bucket>") whose
@@ -227,9 +261,11 @@ func (e *BoundError) Unwrap() error { return e.Err }
 // times it that the store can reserve (found by asking for it), so that
 // the dead letters never take more than about a quarter of the room left;
 // at least floor (which is always tried: the halving need not land on
-// it), and no bound when the store cannot reserve even that. cfg.MaxBytes
-// is left as applied.
-func defaultDeadLetterBound(ctx context.Context, js jetstream.JetStream, cfg *jetstream.StreamConfig, want, floor int64) error {
+// it), and no bound when the store cannot reserve even that; want and
+// floor are aim's. cfg.MaxBytes is left as applied. notify, when not nil,
+// is told when it waits for another process's bound.
+func defaultDeadLetterBound(ctx context.Context, js jetstream.JetStream, cfg *jetstream.StreamConfig, aim deadLetterAim, notify func(string)) error {
+	want, floor := aim.want, aim.floor
 	// serve processes starting together each find the bound. Their probes
 	// of one stream take each other's room (a probe of four times the
 	// bound held by one made another's fail), so they could settle on
@@ -242,14 +278,14 @@ func defaultDeadLetterBound(ctx context.Context, js jetstream.JetStream, cfg *je
 	_, err := js.Stream(lctx, cfg.Name)
 	cancel()
 	if errors.Is(err, jetstream.ErrStreamNotFound) {
-		done, err := createDeadLetterBound(ctx, js, cfg, want, floor)
+		done, err := createDeadLetterBound(ctx, js, cfg, aim, notify)
 		if done || err != nil {
 			return err
 		}
 	} else if err == nil {
 		// A stream that stands: one another Setup is probing or has
 		// marked (with the same aim) is taken as that Setup leaves it.
-		done, err := adoptDeadLetterBound(ctx, js, cfg, want, floor)
+		done, err := adoptDeadLetterBound(ctx, js, cfg, aim, notify)
 		if done || err != nil {
 			return err
 		}
@@ -260,7 +296,7 @@ func defaultDeadLetterBound(ctx context.Context, js jetstream.JetStream, cfg *je
 		err := createOrUpdateStream(ctx, js, *cfg)
 		if err == nil {
 			cfg.MaxBytes = max(try/4, floor)
-			return createOrUpdateStream(ctx, js, markDeadLetterBound(*cfg, want, floor))
+			return createOrUpdateStream(ctx, js, markDeadLetterBound(*cfg, aim))
 		}
 		if !insufficientStorage(err) {
 			return err
@@ -270,19 +306,84 @@ func defaultDeadLetterBound(ctx context.Context, js jetstream.JetStream, cfg *je
 		}
 	}
 	cfg.MaxBytes = -1
-	return createOrUpdateStream(ctx, js, markDeadLetterBound(*cfg, want, floor))
+	return createOrUpdateStream(ctx, js, markDeadLetterBound(*cfg, aim))
 }
 
-// deadLetterBoundKey marks the dead-letter stream whose bound Setup has
-// found (see defaultDeadLetterBound).
+// deadLetterBoundKey marks the dead-letter stream with how its bound was
+// set: "BOUND WANT FLOOR UNIX STORE" for a bound found for the aim WANT
+// and the floor FLOOR (see defaultDeadLetterBound) at the Unix time UNIX
+// on a store of STORE bytes (0: not known), or "BOUND given UNIX" for a
+// bound given in StreamSettings. A mark of the version before this one
+// ("BOUND WANT FLOOR") is read as found long ago on a store not known.
 const deadLetterBoundKey = "undercurrent.dead_letter_bound"
 
-// markDeadLetterBound returns cfg with the mark of a found bound: the
-// bound, and the aim and floor it was found for.
-func markDeadLetterBound(cfg jetstream.StreamConfig, want, floor int64) jetstream.StreamConfig {
+// deadLetterAim is what a default dead-letter bound is found for: the aim
+// want, the least bound floor, on a store of store bytes (0: not known).
+type deadLetterAim struct{ want, floor, store int64 }
+
+// deadLetterMark is a dead-letter stream's mark, read.
+type deadLetterMark struct {
+	ok    bool // a mark that holds for the stream's bound
+	given bool
+	bound int64 // -1 for none
+	aim   deadLetterAim
+	at    time.Time
+}
+
+// readDeadLetterMark reads info's mark. A mark whose bound is not the
+// stream's (the stream updated by an earlier version since) is not ok.
+func readDeadLetterMark(info *jetstream.StreamInfo) deadLetterMark {
+	var m deadLetterMark
+	f := strings.Fields(info.Config.Metadata[deadLetterBoundKey])
+	var err error
+	num := func(s string) int64 {
+		n, e := strconv.ParseInt(s, 10, 64)
+		err = cmp.Or(err, e)
+		return n
+	}
+	switch {
+	case len(f) == 3 && f[1] == "given":
+		m.given, m.bound, m.at = true, num(f[0]), time.Unix(num(f[2]), 0)
+	case len(f) == 3 || len(f) == 5:
+		m.bound, m.aim.want, m.aim.floor = num(f[0]), num(f[1]), num(f[2])
+		if len(f) == 5 {
+			m.at, m.aim.store = time.Unix(num(f[3]), 0), num(f[4])
+		}
+	default:
+		return m
+	}
+	m.ok = err == nil && m.bound == info.Config.MaxBytes
+	return m
+}
+
+// standingDeadLetterMark reads the mark of the dead-letter stream as it
+// stands (not ok when it does not stand, or cannot be looked up).
+func standingDeadLetterMark(ctx context.Context, js jetstream.JetStream) deadLetterMark {
+	lctx, cancel := context.WithTimeout(ctx, attemptTimeout)
+	defer cancel()
+	st, err := js.Stream(lctx, StreamDeadLetter)
+	if err != nil {
+		return deadLetterMark{}
+	}
+	return readDeadLetterMark(st.CachedInfo())
+}
+
+// markDeadLetterBound returns cfg with the mark of a bound found now for
+// aim.
+func markDeadLetterBound(cfg jetstream.StreamConfig, aim deadLetterAim) jetstream.StreamConfig {
+	return withDeadLetterMark(cfg, fmt.Sprintf("%d %d %d %d %d", cfg.MaxBytes, aim.want, aim.floor, time.Now().Unix(), aim.store))
+}
+
+// markGivenDeadLetterBound returns cfg with the mark of a bound given in
+// the settings.
+func markGivenDeadLetterBound(cfg jetstream.StreamConfig) jetstream.StreamConfig {
+	return withDeadLetterMark(cfg, fmt.Sprintf("%d given %d", cfg.MaxBytes, time.Now().Unix()))
+}
+
+func withDeadLetterMark(cfg jetstream.StreamConfig, mark string) jetstream.StreamConfig {
 	md := make(map[string]string, len(cfg.Metadata)+1)
 	maps.Copy(md, cfg.Metadata)
-	md[deadLetterBoundKey] = fmt.Sprintf("%d %d %d", cfg.MaxBytes, want, floor)
+	md[deadLetterBoundKey] = mark
 	cfg.Metadata = md
 	return cfg
 }
@@ -293,7 +394,8 @@ func markDeadLetterBound(cfg jetstream.StreamConfig, want, floor int64) jetstrea
 // the process that made it meanwhile; not done when the stream was made
 // meanwhile and no mark came in deadLetterMarkWait (a Setup of an earlier
 // version), for the caller to probe it by updates.
-func createDeadLetterBound(ctx context.Context, js jetstream.JetStream, cfg *jetstream.StreamConfig, want, floor int64) (bool, error) {
+func createDeadLetterBound(ctx context.Context, js jetstream.JetStream, cfg *jetstream.StreamConfig, aim deadLetterAim, notify func(string)) (bool, error) {
+	want, floor := aim.want, aim.floor
 	for try := 4 * max(want, floor); ; try /= 2 {
 		try = max(try, floor)
 		probe := *cfg
@@ -307,10 +409,10 @@ func createDeadLetterBound(ctx context.Context, js jetstream.JetStream, cfg *jet
 		}
 		if err == nil {
 			cfg.MaxBytes = max(try/4, floor)
-			return true, createOrUpdateStream(ctx, js, markDeadLetterBound(*cfg, want, floor))
+			return true, createOrUpdateStream(ctx, js, markDeadLetterBound(*cfg, aim))
 		}
 		if errors.Is(err, jetstream.ErrStreamNameAlreadyInUse) {
-			return adoptDeadLetterBound(ctx, js, cfg, want, floor)
+			return adoptDeadLetterBound(ctx, js, cfg, aim, notify)
 		}
 		if !insufficientStorage(err) {
 			return false, err
@@ -322,12 +424,12 @@ func createDeadLetterBound(ctx context.Context, js jetstream.JetStream, cfg *jet
 					return false, nil
 				}
 				if errors.Is(err, jetstream.ErrStreamNameAlreadyInUse) {
-					return adoptDeadLetterBound(ctx, js, cfg, want, floor)
+					return adoptDeadLetterBound(ctx, js, cfg, aim, notify)
 				}
 				return false, err
 			}
 			cfg.MaxBytes = -1
-			return true, createOrUpdateStream(ctx, js, markDeadLetterBound(*cfg, want, floor))
+			return true, createOrUpdateStream(ctx, js, markDeadLetterBound(*cfg, aim))
 		}
 	}
 }
@@ -339,31 +441,58 @@ func createOnly(ctx context.Context, js jetstream.JetStream, cfg jetstream.Strea
 	return js.CreateStream(actx, cfg)
 }
 
-// deadLetterMarkWait bounds the wait for another process's found bound.
-const deadLetterMarkWait = 10 * time.Second
+// deadLetterMarkWait bounds the wait for another process's found bound;
+// deadLetterFresh is how long a bound found below its aim on a store of
+// a size not known is taken by other processes as theirs (they started
+// together with the one that found it) before a start probes the room
+// again (it may have grown); deadLetterNew is how long after its making
+// an unmarked stream is taken for one another process is probing (an
+// older unmarked stream is an earlier version's, probed at once).
+const (
+	deadLetterMarkWait = 10 * time.Second
+	deadLetterFresh    = 30 * time.Second
+	deadLetterNew      = 30 * time.Second
+)
 
-// adoptDeadLetterBound waits, up to deadLetterMarkWait, for the mark of
-// the bound another Setup found for the same aim and floor, and takes that
-// bound (done). Not done when no such mark comes: a stream left by an
-// earlier version or found for another aim, for the caller to probe.
-func adoptDeadLetterBound(ctx context.Context, js jetstream.JetStream, cfg *jetstream.StreamConfig, want, floor int64) (bool, error) {
+// adoptDeadLetterBound takes the bound another Setup found for the same
+// aim and floor (done): at once when the aim was reached; when it was
+// found below the aim, on a store of the same size, or, when the store's
+// size is not known, less than deadLetterFresh ago (processes started
+// together); waiting, up to deadLetterMarkWait, for the mark of a stream
+// made less than deadLetterNew ago and not yet marked. Not done, for the
+// caller to probe the room by updates: a bound found below its aim on a
+// store of another size (broker.store_max_bytes raised, disk space freed)
+// or longer ago, one found for another aim or given in the settings, a
+// stream of an earlier version, or no mark in the time.
+func adoptDeadLetterBound(ctx context.Context, js jetstream.JetStream, cfg *jetstream.StreamConfig, aim deadLetterAim, notify func(string)) (bool, error) {
 	wctx, cancel := context.WithTimeout(ctx, deadLetterMarkWait)
 	defer cancel()
+	told := false
 	for {
 		actx, acancel := context.WithTimeout(wctx, attemptTimeout)
 		st, err := js.Stream(actx, cfg.Name)
 		acancel()
 		if err == nil {
-			c := st.CachedInfo().Config
-			var b, w, f int64
-			if v, ok := c.Metadata[deadLetterBoundKey]; ok {
-				if n, _ := fmt.Sscanf(v, "%d %d %d", &b, &w, &f); n == 3 && b == c.MaxBytes {
-					if w != want || f != floor {
-						return false, nil
-					}
-					cfg.MaxBytes = b
-					return true, createOrUpdateStream(ctx, js, markDeadLetterBound(*cfg, want, floor))
+			info := st.CachedInfo()
+			m := readDeadLetterMark(info)
+			switch {
+			case m.ok && !m.given && m.aim.want == aim.want && m.aim.floor == aim.floor:
+				atAim := m.bound == max(aim.want, aim.floor)
+				sameStore := aim.store > 0 && m.aim.store == aim.store
+				fresh := aim.store == 0 && time.Since(m.at) < deadLetterFresh
+				if !atAim && !sameStore && !fresh {
+					return false, nil
 				}
+				// The mark is kept as it was: a restart adopting it
+				// does not make a bound found below its aim fresh again.
+				cfg.MaxBytes = m.bound
+				return true, createOrUpdateStream(ctx, js, withDeadLetterMark(*cfg, info.Config.Metadata[deadLetterBoundKey]))
+			case m.ok, time.Since(info.Created) > deadLetterNew:
+				return false, nil
+			}
+			if !told && notify != nil {
+				notify(fmt.Sprintf("waiting up to %v for the dead-letter bound another serve is finding", deadLetterMarkWait))
+				told = true
 			}
 		}
 		select {
@@ -449,7 +578,7 @@ func retrying(ctx context.Context, op func(context.Context) error) error {
 		if errors.As(err, &je) && je.APIError() != nil {
 			code = int(je.APIError().ErrorCode)
 		}
-		if code != errCodeStreamNameInUse && code != errCodeNoPeers && !noAnswer(err) {
+		if code != errCodeStreamNameInUse && code != errCodeNoPeers && !noAnswer(err) || insufficientStorage(err) {
 			return err
 		}
 		select {
@@ -481,7 +610,10 @@ func insufficientStorage(err error) bool {
 		return false
 	}
 	c := je.APIError().ErrorCode
-	return c == errCodeInsufficientStorage || c == errCodeInsufficientMemory
+	// A cluster refuses a create it has no room for as "no suitable peers
+	// for placement, insufficient storage" (nats-server 2.15.2).
+	return c == errCodeInsufficientStorage || c == errCodeInsufficientMemory ||
+		c == errCodeNoPeers && strings.Contains(je.APIError().Description, "insufficient storage")
 }
 
 // Auth holds client credentials and TLS settings; the zero value

@@ -78,3 +78,26 @@ func TestHistoryCSVChangeMissingSpikes(t *testing.T) {
 		}
 	}
 }
+
+// TestHistoryCSVTimesInFull: the history CSV gives window and change
+// times in full. Written to ten significant digits, a change at Unix time
+// 1796104830.5 came out as 1796104830, the start of its one-second window,
+// while the JSON history said 1796104830.5. The estimate is an invented
+// fixture; what is checked is the project's own format (README).
+func TestHistoryCSVTimesInFull(t *testing.T) {
+	ests := []Estimate{{Asset: "a", Window: 1796104830, Start: 1796104830, End: 1796104831.25, Mode: "dc",
+		Conductors: []ConductorEstimate{{Name: "go", Current: 150, CurrentSigma: 0.01}}, Quality: "good", Sensors: 4,
+		Change: &WindowChange{At: 1796104830.5, Sigmas: 900, Conductors: []ChangeLevel{{Name: "go", Before: 200, BeforeSigma: 0.02, After: 100, AfterSigma: 0.03}}}}}
+	rec := httptest.NewRecorder()
+	writeEstimatesCSV(rec, ests)
+	rows, err := csv.NewReader(strings.NewReader(rec.Body.String())).ReadAll()
+	if err != nil || len(rows) != 2 {
+		t.Fatalf("%v\n%s", err, rec.Body.String())
+	}
+	for i, name := range rows[0] {
+		want, ok := map[string]string{"start": "1796104830", "end": "1796104831.25", "change_at": "1796104830.5"}[name]
+		if ok && rows[1][i] != want {
+			t.Errorf("%s: %q, want %q", name, rows[1][i], want)
+		}
+	}
+}

@@ -440,6 +440,10 @@ func writeEstimatesCSV(w http.ResponseWriter, ests []Estimate) {
 		"change_at", "change_sigmas", "current_before_a", "current_before_sigma_a", "current_after_a", "current_after_sigma_a", "phase_before_deg", "phase_after_deg",
 		"missing", "spikes", "implausible", "frequency_hz", "frequency_sigma_hz"})
 	f := func(v float64) string { return strconv.FormatFloat(v, 'g', 10, 64) }
+	// Times (seconds on the sensors' clock, Unix seconds for most) in
+	// full: ten significant digits would cut a change inside a window to
+	// the whole second of its start.
+	ft := func(v float64) string { return strconv.FormatFloat(v, 'f', -1, 64) }
 	fp := func(v *float64) string {
 		if v == nil {
 			return ""
@@ -478,7 +482,7 @@ func writeEstimatesCSV(w http.ResponseWriter, ests []Estimate) {
 			if e.Change == nil {
 				return out
 			}
-			out[0], out[1] = f(e.Change.At), f(e.Change.Sigmas)
+			out[0], out[1] = ft(e.Change.At), f(e.Change.Sigmas)
 			for _, l := range e.Change.Conductors {
 				if l.Name == name {
 					out[2], out[3], out[4], out[5] = f(l.Before), f(l.BeforeSigma), f(l.After), f(l.AfterSigma)
@@ -501,13 +505,13 @@ func writeEstimatesCSV(w http.ResponseWriter, ests []Estimate) {
 			if c.PhaseSigmaGeometry != nil {
 				gps = f(*c.PhaseSigmaGeometry)
 			}
-			row := []string{e.Asset, strconv.FormatInt(e.Window, 10), f(e.Start), f(e.End), c.Name, f(c.Current), f(c.CurrentSigma),
+			row := []string{e.Asset, strconv.FormatInt(e.Window, 10), ft(e.Start), ft(e.End), c.Name, f(c.Current), f(c.CurrentSigma),
 				ph, phs, f(e.RMS), f(e.Chi2), strconv.Itoa(e.DOF), e.Quality, strconv.Itoa(e.Sensors), strconv.Itoa(e.Revision), gs, gps, scale, e.DataLost}
 			row = append(append(row, change(c.Name)...), tail...)
 			cw.Write(row)
 		}
 		if len(e.Conductors) == 0 {
-			row := []string{e.Asset, strconv.FormatInt(e.Window, 10), f(e.Start), f(e.End), "", "", "", "", "", f(e.RMS), f(e.Chi2), strconv.Itoa(e.DOF), e.Quality, strconv.Itoa(e.Sensors), strconv.Itoa(e.Revision), "", "", scale, e.DataLost}
+			row := []string{e.Asset, strconv.FormatInt(e.Window, 10), ft(e.Start), ft(e.End), "", "", "", "", "", f(e.RMS), f(e.Chi2), strconv.Itoa(e.DOF), e.Quality, strconv.Itoa(e.Sensors), strconv.Itoa(e.Revision), "", "", scale, e.DataLost}
 			row = append(append(row, change("")...), tail...)
 			cw.Write(row)
 		}

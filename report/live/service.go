@@ -44,6 +44,14 @@ type Config struct {
 	Logger *slog.Logger
 	// Memory keeps streams in memory (tests).
 	Memory bool
+	// External says the broker is not the embedded one (serve --broker):
+	// its store's limits are in its own configuration, not the site
+	// file's broker.store_max_bytes.
+	External bool
+	// StoreBytes is the embedded broker's store limit, bytes (0 for an
+	// external broker): a dead-letter bound found below its aim is kept
+	// by a restart on a store of the same size and found again on another.
+	StoreBytes int64
 	// OnEstimate, when set, is called after each estimate is acknowledged
 	// with the time since its window closed (load tests).
 	OnEstimate func(e *Estimate, latency time.Duration)
@@ -64,6 +72,8 @@ type Service struct {
 	onEstimate   func(*Estimate, time.Duration)
 	httpAddr     string
 	memory       bool
+	external     bool
+	storeBytes   int64
 
 	// stopped holds, per asset this worker has stopped for want of a
 	// site file that says more (a commissioning needsSiteError), why.
@@ -128,7 +138,7 @@ func New(cfg Config) (*Service, error) {
 	}
 	s := &Service{site: cfg.Site, nc: cfg.Conn, id: cfg.Worker, log: cfg.Logger, met: newMetrics(),
 		newEstimator: cfg.NewEstimator, commissioner: cfg.Commissioner, onEstimate: cfg.OnEstimate,
-		httpAddr: cfg.HTTP, memory: cfg.Memory, held: map[string]*holding{}, leftElsewhere: map[string]bool{}, ready: make(chan struct{})}
+		httpAddr: cfg.HTTP, memory: cfg.Memory, external: cfg.External, storeBytes: cfg.StoreBytes, held: map[string]*holding{}, leftElsewhere: map[string]bool{}, ready: make(chan struct{})}
 	if s.id == "" {
 		host, _ := os.Hostname()
 		var b [3]byte
@@ -221,10 +231,14 @@ func (s *Service) Run(ctx context.Context) error {
 	s.stores, err = broker.Setup(sctx, js, broker.StreamSettings{
 		Replicas: s.site.Broker.Replicas, DataMaxAge: s.site.Broker.DataRetention.Duration, DataMaxBytes: s.site.Broker.DataMaxBytes,
 		DeadLetterMaxBytes: s.site.Broker.DLQMaxBytes, DeadLetterDefault: s.site.dlqDefault(), DeadLetterMin: s.site.dlqMin(),
-		LeaseTTL: s.site.Service.LeaseTTL.Duration, Memory: s.memory})
+		LeaseTTL: s.site.Service.LeaseTTL.Duration, Memory: s.memory, StoreBytes: s.storeBytes,
+		Notify: func(msg string) { s.log.Info(msg, "stream", broker.StreamDeadLetter) }})
 	cancel()
 	if err != nil {
-		return fmt.Errorf("live: %w%s", err, s.site.boundAdvice(err))
+		return fmt.Errorf("live: %w%s", err, s.site.boundAdvice(err, s.external))
+	}
+	if r := s.stores.DeadLetterReplaced; r != nil {
+		s.log.Warn(s.site.dlqReplacedWarning(r, s.stores.DeadLetterMaxBytes), "stream", broker.StreamDeadLetter)
 	}
 	if kept := s.stores.KeptReplicas; len(kept) > 0 {
 		names := make([]string, len(kept))
@@ -239,7 +253,7 @@ func (s *Service) Run(ctx context.Context) error {
 	if n := s.stores.DeadLetterMaxBytes; n > 0 {
 		s.log.Info("dead letters kept up to a bound, the oldest giving way", "stream", broker.StreamDeadLetter, "max_bytes", n, "max_age", broker.DeadLetterMaxAge)
 	} else {
-		msg, attrs := s.site.dlqUnboundedWarning()
+		msg, attrs := s.site.dlqUnboundedWarning(s.external)
 		s.log.Warn(msg, attrs...)
 	}
 	var srv *http.Server
@@ -569,10 +583,18 @@ func storeRefused(err error) bool {
 // advice is room in the store. With store_max_bytes given it says the
 // room data_max_bytes leaves (the pipeline's other streams and buckets
 // reserve none).
-func (s *Site) dlqUnboundedWarning() (string, []any) {
+func (s *Site) dlqUnboundedWarning(external bool) (string, []any) {
 	need := s.dlqMin()
 	attrs := []any{"stream", broker.StreamDeadLetter, "max_age", broker.DeadLetterMaxAge, "least_bound_bytes", need}
 	room := fmt.Sprintf(", which needs at least %d bytes", need)
+	if external {
+		advice := "give the broker's servers more JetStream storage (max_file_store in the nats-server configuration)"
+		if s.Broker.DataMaxBytes > 0 {
+			advice += " or lower broker.data_max_bytes"
+		}
+		return fmt.Sprintf("the broker cannot reserve room for a bounded dead-letter stream%s (four times service.max_message_bytes, below which broker.dlq_max_bytes cannot be set): "+
+			"refused messages are kept unbounded for their max age; to bound them, %s, and restart serve", room, advice), attrs
+	}
 	if st := s.Broker.StoreMaxBytes; st > 0 {
 		left := max(st-s.Broker.DataMaxBytes, 0)
 		room = fmt.Sprintf(": broker.store_max_bytes %d less broker.data_max_bytes %d leaves %d bytes, and a bound needs at least %d", st, s.Broker.DataMaxBytes, left, need)
@@ -595,9 +617,23 @@ func (s *Site) dlqUnboundedWarning() (string, []any) {
 // *broker.BoundError) adds to serve's error: which settings make room,
 // and, for the dead letters, the least broker.dlq_max_bytes taken. "" for
 // other errors.
-func (s *Site) boundAdvice(err error) string {
+func (s *Site) boundAdvice(err error, external bool) string {
 	var be *broker.BoundError
 	if !errors.As(err, &be) {
+		return ""
+	}
+	if external {
+		// A cluster's limits are its nats-server configuration's;
+		// broker.store_max_bytes is the embedded broker's.
+		switch be.Stream {
+		case broker.StreamDeadLetter:
+			if s.Broker.DLQMaxBytes > s.dlqMin() {
+				return fmt.Sprintf("; lower broker.dlq_max_bytes (to no less than %d, four times service.max_message_bytes) or broker.data_max_bytes, or give the broker's servers more JetStream storage (max_file_store in the nats-server configuration)", s.dlqMin())
+			}
+			return fmt.Sprintf("; broker.dlq_max_bytes cannot be less than %d (four times service.max_message_bytes): lower broker.data_max_bytes, or give the broker's servers more JetStream storage (max_file_store in the nats-server configuration)", s.dlqMin())
+		case broker.StreamData:
+			return "; lower broker.data_max_bytes, or give the broker's servers more JetStream storage (max_file_store in the nats-server configuration)"
+		}
 		return ""
 	}
 	switch be.Stream {
@@ -610,6 +646,29 @@ func (s *Site) boundAdvice(err error) string {
 		return "; lower broker.data_max_bytes, or raise broker.store_max_bytes"
 	}
 	return ""
+}
+
+// dlqReplacedWarning is the WARN logged when the dead-letter stream stood
+// with a bound set otherwise than this serve set it (r; now is the bound
+// it has now, 0 for none): serve processes sharing a broker with
+// different dead-letter settings replace each other's bound, the last to
+// start setting it.
+func (s *Site) dlqReplacedWarning(r *broker.DeadLetterReplaced, now int64) string {
+	bound := func(n int64) string {
+		if n <= 0 {
+			return "no bound"
+		}
+		return fmt.Sprintf("%d bytes", n)
+	}
+	was := bound(r.Bound) + " found by a serve without broker.dlq_max_bytes"
+	if r.Given {
+		was = fmt.Sprintf("%s from broker.dlq_max_bytes = %d", bound(r.Bound), r.Bound)
+	}
+	is := bound(now) + " found for this site file, which gives no broker.dlq_max_bytes"
+	if s.Broker.DLQMaxBytes != 0 {
+		is = fmt.Sprintf("%s from this site file's broker.dlq_max_bytes", bound(now))
+	}
+	return fmt.Sprintf("the dead-letter stream's bound was %s; it is now %s. Every serve on this broker should have the same broker.dlq_max_bytes (or none): the last to start sets the bound", was, is)
 }
 
 // storeFullAdvice is the ERROR logged when the broker's store fills. The
