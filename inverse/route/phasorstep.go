@@ -352,13 +352,28 @@ func phasorFinding(u []*Placed, t []float64, ia, ib, lo, hi int, ramp, rampSigma
 	var nb, na int
 	add := func(k int) {
 		q := u[k]
+		// A station whose fit misses its readings by more than the
+		// noise allows sets no level beyond the run; within the run
+		// (the stations beside the change read part of it, as a
+		// semi-infinite line, and the straight-line fit misses them
+		// for that) it is kept with its sigmas widened by its misfit,
+		// as the magnitude steps keep their bracketing stations
+		// (plateau.go levelStations, misfitSigma): near a route's end
+		// the run's stations may be all the far side has.
+		w := 1.0
 		if !clean(q, set) {
-			return
+			if k < ia || k > ib {
+				return
+			}
+			if q.DOF > 0 && q.Chi2 > 0 {
+				w = math.Sqrt(math.Max(1, q.Chi2/float64(q.DOF)))
+			}
 		}
 		x = append(x, q.Chainage)
 		p = append(p, cmplx.Rect(q.Current, (q.Phase-ramp*(t[k]-tm))*rad))
-		ps := q.Current * math.Hypot(q.PhaseSigma, excess/math.Sqrt2) * rad
-		v = append(v, (q.CurrentSigma*q.CurrentSigma+tau*tau+ps*ps)/2)
+		ps := q.Current * math.Hypot(w*q.PhaseSigma, excess/math.Sqrt2) * rad
+		cs := w * q.CurrentSigma
+		v = append(v, (cs*cs+tau*tau+ps*ps)/2)
 		switch {
 		case k <= ia:
 			tb += t[k]
@@ -443,7 +458,23 @@ func phasorFinding(u []*Placed, t []float64, ia, ib, lo, hi int, ramp, rampSigma
 	magSigma = math.Max(magSigma, (mHi-mLo)/2)
 	angSigma := math.Max(math.Sqrt(math.Max(angVar, 0))/rad, (aHi-aLo)/2)
 	turnSigma := math.Sqrt(math.Max(turnVar, 0)) / rad
-	if !(mag > set.stepK()*magSigma) || !(math.Abs(turn) > set.stepK()*turnSigma) {
+	// A turn of phase beyond StepK of its sigma is itself current leaving
+	// (a phasor cannot turn unless another leaves it: at least |U| sin of
+	// the turn). Its size may still be loose where the far side's level
+	// rests on a station read partway through the change (the change in
+	// a route's last or first interval: the transition's place and width
+	// then trade against that level); it is reported with its sigma and
+	// said to be loose, but only when a station within the run reads
+	// part of the turn (ib > ia+1), as the field of current leaving
+	// does a few depths either side of it. A run of one interval at
+	// the route's end whose size is loose is also what a step of the
+	// grid frequency before the last station gives (phase continuous,
+	// no partial reading), and is left to the magnitude steps.
+	if !(math.Abs(turn) > set.stepK()*turnSigma) {
+		return Finding{}, false
+	}
+	loose := !(mag > set.stepK()*magSigma)
+	if loose && ib-ia < 2 {
 		return Finding{}, false
 	}
 	a, b := u[ia], u[ib]
@@ -481,7 +512,10 @@ func phasorFinding(u []*Placed, t []float64, ia, ib, lo, hi int, ramp, rampSigma
 	if resolved {
 		msg += fmt.Sprintf("; most likely at chainage %s m", pm(fb.xf, atSigma))
 	}
-	msg += fmt.Sprintf("; levels fitted with the transition from %d and %d sound stations", fb.nBefore, fb.nAfter)
+	msg += fmt.Sprintf("; levels fitted with the transition from %d and %d stations", fb.nBefore, fb.nAfter)
+	if loose {
+		msg += fmt.Sprintf(" (the size is loose, under %s sigma: too few stations past the change read its far level in full; the turn of phase is sure)", strconv.FormatFloat(set.stepK(), 'g', 3, 64))
+	}
 	if ramp != 0 {
 		what := fmt.Sprintf("%s° per metre of chainage", strconv.FormatFloat(ramp, 'g', 2, 64))
 		if !u[0].Start.IsZero() {
