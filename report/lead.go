@@ -188,13 +188,23 @@ func leadByPosition(fits []Fit, ac bool) {
 // it from the neighbouring traverses, before current size: where the
 // strongest line of a group runs over crossAngle degrees in plan from the
 // direction the neighbours' conductor 1 agrees on (continuityNeighbours),
-// or carries over continuityLevel times their median current (a -10 A
-// line of a crossing pair fitted near the route's direction beside a
-// 2.2 A pipe), and a further line runs within crossAngle of it at every
-// one of them, lies near one of their lines carried on (pointToLine
-// within continuityReach) and carries a current of that conductor's level
-// (within a factor continuityLevel of their median) the same way, that
-// line becomes the first. The strongest stays a further line, reported as
+// or carries over continuityLevel times their median current and lies
+// off their track (a -10 A line of a crossing pair fitted near the
+// route's direction 12 m beside a 2.2 A pipe), and a further line runs
+// within crossAngle of it at every one of them, lies near one of their
+// lines carried on (pointToLine within continuityReach; for a strongest
+// line running off, within half the plan distance to that group when that
+// is more) and carries a current of that conductor's level (within a
+// factor continuityLevel of their median) the same way, that line becomes
+// the first. A strongest line along the direction that lies on their
+// track (within continuityReach of one of their lines carried on) is the
+// conductor itself, whatever its current: a fault or a bond between
+// traverses changes the conductor's current, not where it lies, and near
+// a route's end most of the six neighbours lie on the far side of it (a
+// 25 A bond between the last traverses but one of a 5 A pipe, a 5 A cable
+// 3 m beside it: the 30 A pipe at the last two traverses was taken for a
+// crossing and conductor 1 moved onto the cable, the bond's warning lost
+// and the cable said to end; found in review). The strongest stays a further line, reported as
 // one (a crossing service: the tracks and the lone-line findings); an
 // unresolved go-and-return pair it belongs to keeps its pair
 // (Result.Pairs, their indices carried over), and a resolved one
@@ -218,8 +228,10 @@ const continuityLevel = 4.0
 
 // continuityReach is the distance in space, m, within which a continuing
 // line must pass one of the agreeing neighbours' conductor 1 carried on,
-// or half the plan distance between the two groups' readings when that
-// is more (a route bending by up to crossAngle between them).
+// or, where the strongest line runs off their direction, half the plan
+// distance between the two groups' readings when that is more (a route
+// bending by up to crossAngle between them). A strongest line along their
+// direction within it of one of their lines lies on their track.
 const continuityReach = 2.0
 
 // planAgree reports whether plan directions a and b (unit, either sense)
@@ -330,14 +342,30 @@ func leadByContinuity(fits []Fit, ac bool) {
 			}
 			level, way := median(levels), median(ways)
 			// The strongest line breaks the continuity when it runs off
-			// the agreed direction or carries far more than its level.
+			// the agreed direction, or carries far more than their level
+			// and lies off their track: not within continuityReach of any
+			// of their lines carried on. A line on their track with more
+			// current is the conductor itself, current joining it (a bond,
+			// a drain point, a tee feeding in) or leaving it between
+			// traverses (a fault), and keeps its place: taken by current
+			// alone, a 30 A pipe at the traverse past a 25 A bond near the
+			// route's end was moved off for a 5 A cable 3 m beside it,
+			// the bond's warning lost and the cable said to end.
+			onTrack := func(p [3]float64) bool {
+				for _, a := range agree {
+					if pointToLine(p, leads[a].point, leads[a].dir3) <= continuityReach {
+						return true
+					}
+				}
+				return false
+			}
 			off := true
 			for _, a := range agree {
 				if planAgree(leads[i].dir, leads[a].dir) {
 					off = false
 				}
 			}
-			if !off && leads[i].cur <= continuityLevel*level {
+			if !off && (leads[i].cur <= continuityLevel*level || onTrack(leads[i].point)) {
 				continue
 			}
 			pick, best := -1, math.Inf(1)
@@ -363,9 +391,14 @@ func leadByContinuity(fits []Fit, ac bool) {
 				if !runs || !(c*continuityLevel >= level && c <= continuityLevel*level) || !ac && along(v, s.Current)*way < 0 {
 					continue
 				}
-				// Near one of their lines carried on.
+				// Near one of their lines carried on: within half the plan
+				// distance to that group when the strongest runs off (the
+				// route may bend there), on their track when it runs along.
 				for _, a := range agree {
-					reach := math.Max(continuityReach, planDist(i, a)/2)
+					reach := continuityReach
+					if off {
+						reach = math.Max(continuityReach, planDist(i, a)/2)
+					}
 					if d := pointToLine(s.Point, leads[a].point, leads[a].dir3); d <= reach && d < best {
 						pick, best = j, d
 					}
