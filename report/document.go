@@ -564,7 +564,7 @@ func (r *Route) endLevel(a *Station) (float64, float64) {
 	var sw, swv float64
 	for i := range r.Stations {
 		s := &r.Stations[i]
-		if !s.Used || math.Abs(s.Chainage-a.Chainage) >= r.RepeatGap && s != a {
+		if d := math.Abs(s.Chainage - a.Chainage); !s.Used || d >= r.RepeatGap && d > 0 {
 			continue
 		}
 		v, sig := s.levelCurrent()
