@@ -1,6 +1,9 @@
 package report
 
-import "encoding/json"
+import (
+	"encoding/json"
+	"math"
+)
 
 // SchemaVersion is the version of the result document written by this
 // package. It grows by one whenever a field changes meaning or is removed;
@@ -539,6 +542,42 @@ type Route struct {
 	// that conductor is a go-and-return pair found beside conductor 1
 	// (Group.Pair), followed at its centre with its net current.
 	PairNet bool `json:"pair_net,omitempty"`
+	// FirstWalk, when the route was walked more than once and one ratio
+	// or one change per walk accounts for the walks' currents differing
+	// (the walks-differ caution), names the first walk ("day1.csv"): the
+	// steps, the summary's currents at the route's ends and the
+	// between-station scatter take every station's current at its level
+	// (Station.CurrentFirstWalk), and RepeatGap is the chainage within
+	// which stations are repeats of one station, m. Both absent otherwise.
+	FirstWalk string  `json:"first_walk,omitempty"`
+	RepeatGap float64 `json:"repeat_gap_m,omitempty"`
+}
+
+// endLevel returns the current at the route's end at station a (used),
+// at the first walk's level, pooled over a's repeats (the used stations
+// within RepeatGap of it): their inverse-variance mean and its sigma. It
+// gives a's own current when the walks were not brought to one level.
+func (r *Route) endLevel(a *Station) (float64, float64) {
+	if r.FirstWalk == "" {
+		return a.Current, a.CurrentSigma
+	}
+	var sw, swv float64
+	for i := range r.Stations {
+		s := &r.Stations[i]
+		if d := math.Abs(s.Chainage - a.Chainage); !s.Used || d >= r.RepeatGap && d > 0 {
+			continue
+		}
+		v, sig := s.levelCurrent()
+		if !(sig > 0) {
+			return a.levelCurrent()
+		}
+		sw += 1 / (sig * sig)
+		swv += v / (sig * sig)
+	}
+	if !(sw > 0) {
+		return a.levelCurrent()
+	}
+	return swv / sw, math.Sqrt(1 / sw)
 }
 
 // Track is a further conductor followed along the route.
@@ -616,6 +655,23 @@ type Station struct {
 	// sensors, a compact group) or it runs within 20 degrees of the
 	// conductor (route.Station.UnderCentre). Absent otherwise.
 	UnderCentre bool `json:"under_readings_centre,omitempty"`
+	// CurrentFirstWalk and CurrentFirstWalkSigma are, on a used station
+	// of a route walked more than once at currents that differ by one
+	// ratio or one change per walk (Route.FirstWalk), its current brought
+	// to the first walk's level, A, with the ratio's or change's sigma
+	// carried, as the steps take it (route.Placed.FirstWalkCurrent);
+	// absent otherwise.
+	CurrentFirstWalk      *float64 `json:"current_first_walk_a,omitempty"`
+	CurrentFirstWalkSigma *float64 `json:"current_first_walk_sigma_a,omitempty"`
+}
+
+// levelCurrent returns s's current and sigma at the first walk's level
+// (CurrentFirstWalk) when it has one, else its own.
+func (s *Station) levelCurrent() (float64, float64) {
+	if s.CurrentFirstWalk != nil && s.CurrentFirstWalkSigma != nil {
+		return *s.CurrentFirstWalk, *s.CurrentFirstWalkSigma
+	}
+	return s.Current, s.CurrentSigma
 }
 
 // estimated reports whether s's current and depth are estimates: a

@@ -130,7 +130,14 @@ func (d *Document) routeOf(r *route.Route) *Route {
 			cs := math.Hypot(p.DepthSigma, ref.GroundSigma)
 			s.Cover, s.CoverSigma = &c, &cs
 		}
+		if r.FirstWalk != "" && s.Used {
+			v, sig := p.FirstWalkCurrent, p.FirstWalkCurrentSigma
+			s.CurrentFirstWalk, s.CurrentFirstWalkSigma = &v, &sig
+		}
 		out.Stations[i] = s
+	}
+	if r.FirstWalk != "" {
+		out.FirstWalk, out.RepeatGap = r.FirstWalk, r.RepeatGap()
 	}
 	var steps [][2]float64
 	for _, f := range r.Findings {
@@ -189,7 +196,15 @@ func (r *Route) setScatter(steps [][2]float64) {
 				}
 			}
 			if !straddles {
-				dI = append(dI, math.Abs(b.Current-a.Current))
+				// At the first walk's level when the walks' currents
+				// differ (Route.FirstWalk): a station beside its repeat
+				// of another walk read the change between the walks, 10%
+				// of the current on a re-walk at a rectifier turned up,
+				// given as every station's realistic spread (found in
+				// review).
+				ia, _ := a.levelCurrent()
+				ib, _ := b.levelCurrent()
+				dI = append(dI, math.Abs(ib-ia))
 				dD = append(dD, math.Abs(b.Depth-a.Depth))
 			}
 		}

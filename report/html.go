@@ -741,8 +741,18 @@ func (v *view) summarise() {
 				v.Headline = append(v.Headline, PairNetSentence)
 				what = "Net current"
 			}
-			v.Headline = append(v.Headline, fmt.Sprintf("%s is %s A at chainage %.0f m and %s A at %.0f m.",
-				what, pm(a.Current, a.CurrentSigma), a.Chainage, pm(b.Current, b.CurrentSigma), b.Chainage))
+			// A route walked again at another current: both ends at the
+			// first walk's level, each pooled over its repeats, not the
+			// start from one walk and the end from another (a 0.435 A
+			// fall along the route read as 0.299 A; found in review).
+			ia, sa := r.endLevel(&a)
+			ib, sb := r.endLevel(&b)
+			level := ""
+			if r.FirstWalk != "" {
+				level = fmt.Sprintf(", both at the level of %s (the walks' currents differ; the others' are brought to it as the walks-differ caution says)", r.FirstWalk)
+			}
+			v.Headline = append(v.Headline, fmt.Sprintf("%s is %s A at chainage %.0f m and %s A at %.0f m%s.",
+				what, pm(ia, sa), a.Chainage, pm(ib, sb), b.Chainage, level))
 			// The shallowest station is taken from every used one (cover is
 			// a safety matter); the deepest from those whose fit is sound,
 			// when there are any: a bend's poor fit read 1.34 m where the
@@ -1377,7 +1387,8 @@ func medianAbsCurrent(r *Route) float64 {
 	var a []float64
 	for _, s := range r.Stations {
 		if s.Used {
-			a = append(a, math.Abs(s.Current))
+			v, _ := s.levelCurrent()
+			a = append(a, math.Abs(v))
 		}
 	}
 	return median(a)

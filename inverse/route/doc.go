@@ -72,7 +72,12 @@
 // inverse-variance mean (see repeats.go). Repeats whose currents disagree
 // beyond their sigmas (a chi-square over the sets of repeats) are reported
 // as KindWalksDiffer, with each walk's level and its change from the
-// first walk (see walks.go).
+// first walk (see walks.go). When one change, or one ratio, per walk
+// accounts for their disagreement, each later walk's stations are first
+// brought to the first walk's level by it, its sigma carried, so that
+// the steps see one current along the route (Route.FirstWalk,
+// Placed.FirstWalkCurrent); otherwise the combined station's sigma is
+// widened by the repeats' disagreement.
 //
 // # Steps in current
 //

@@ -25,9 +25,11 @@ import (
 // the route with each set of repeats combined into one station
 // (combineRepeats): the inverse-variance mean of their currents (and
 // depths), its sigma widened by the repeats' own scatter where they
-// disagree by more than their sigmas say. A repeat walk over part of the
-// route so narrows the stations it repeats, and confirms a loss it
-// covers rather than hiding it. The stations themselves are kept, each
+// disagree by more than their sigmas say (after each later walk is
+// brought to the first walk's level, when one change or one ratio per
+// walk accounts for their disagreement: walks.go scaleWalks). A repeat
+// walk over part of the route so narrows the stations it repeats, and
+// confirms a loss it covers rather than hiding it. The stations themselves are kept, each
 // with its own fit, for the profile, cover and the per-station findings.
 
 // repeatFrac is the fraction of the route's station spacing (repeatSpacing)

@@ -38,6 +38,13 @@ type Placed struct {
 	// also names the repeats of the station combined into this copy of
 	// it for the steps (repeats.go); nil otherwise.
 	also []string
+	// FirstWalkCurrent and FirstWalkCurrentSigma are, when the route was
+	// walked more than once at currents that differ by one ratio or one
+	// change per walk (Route.FirstWalk), the station's current brought to
+	// the first walk's level and its sigma, with the ratio's or change's
+	// sigma carried, A, as the steps take it (walks.go scaleWalks); zero
+	// when Route.FirstWalk is empty.
+	FirstWalkCurrent, FirstWalkCurrentSigma float64
 }
 
 // Route is the result of Build.
@@ -60,6 +67,12 @@ type Route struct {
 	// the uncertainty of its own estimate on a short route (fewer than 16
 	// usable stations; see scatter.go), 1 when it was not.
 	ScatterWidening float64
+	// FirstWalk, when the route was walked more than once and the
+	// walks' currents differ by one ratio (or one change) per walk
+	// (KindWalksDiffer), names the first walk ("day1.csv", "the first
+	// walk"): the steps take every walk's currents at its level (see
+	// Placed.FirstWalkCurrent). Empty otherwise.
+	FirstWalk string
 }
 
 // Build orders stations along the route they trace, measures chainage and
@@ -100,11 +113,22 @@ func Build(stations []Station, set *Settings) (*Route, error) {
 	markStrained(r.Stations, set)
 	ends := conductorEnds(r.Stations, set)
 	// Repeats of a station (a route walked again) are one station for
-	// the steps and the scatter (repeats.go).
-	one := combineRepeats(r.Stations, repeatGap(r.Stations))
+	// the steps and the scatter (repeats.go), each walk's currents first
+	// brought to the first walk's level when one ratio or one change per
+	// walk accounts for their disagreement (walks.go).
+	wf, sc := walksDiffer(r.Stations, repeatGap(r.Stations))
+	pool := r.Stations
+	if sc != nil {
+		pool = scaleWalks(r.Stations, sc)
+		r.FirstWalk = walkRef(sc.ref, sc.named)
+		for k := range r.Stations {
+			r.Stations[k].FirstWalkCurrent, r.Stations[k].FirstWalkCurrentSigma = pool[k].Current, pool[k].CurrentSigma
+		}
+	}
+	one := combineRepeats(pool, repeatGap(r.Stations))
 	// Stations before a named end read its share of the field (endshare.go).
 	one = endCorrected(one)
-	r.Findings = append(r.Findings, walksDiffer(r.Stations, repeatGap(r.Stations))...)
+	r.Findings = append(r.Findings, wf...)
 	r.ModelScatter, r.ScatterWidening = modelScatter(outsideBends(one, set), set)
 	st, notes := steps(one, set, r.ModelScatter, r.ScatterWidening)
 	// AC: changes of phase sized as phasors (phasorstep.go).
