@@ -165,7 +165,11 @@
 // to reach the full data's minimum (lines the automatic count tries beyond those and
 // starts with magnetised objects go straight to the full data). For K
 // lines the starts are the best K-1 fit plus a line at the peak of its residual, or one of
-// its lines split into a close pair (a cable and its return).
+// its lines split into a close pair (a cable and its return). When the K-1 fit was
+// refitted as a go-and-return pair and the K-line fit misses the noise, the same starts
+// are grown from the K-1 lines as polished before that refit too: a pair that two
+// lines collapse into can stand for three conductors metres apart, which starts beside
+// the pair do not reach.
 //
 // With Settings.Count = 0 the count K = 1..4 is chosen by an information criterion,
 //
