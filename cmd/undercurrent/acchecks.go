@@ -65,6 +65,25 @@ const (
 	// freqCheckDegrees is the phase turn across the longest group that an
 	// error in the frequency may cause before locate acts on it.
 	freqCheckDegrees = 2
+	// freqFailedShare is the share of the windows whose frequency fits may
+	// fail (and are left out: calibrate.DemodSettings.SkipFailedFreq)
+	// before locate says so.
+	freqFailedShare = 0.1
+	// freqLooseDegrees is the phase turn across the longest group that the
+	// estimate's offset from --freq plus freqLooseSigmas of its sigma may
+	// allow, when the offset itself is not significant, before locate says
+	// the frequency is not known well enough for one phase per group and
+	// searches every group for a phase ramp (freqHints.loose). An 8 kHz
+	// tone 0.05 Hz off --freq at 200 nT reading noise read 8000.079 ±
+	// 0.032 Hz from its windows, 2.5 sigmas off and so taken as 8000 Hz
+	// with no word, while 0.05 Hz turned the phase 180° across each 10 s
+	// traverse: every traverse became a phantom go-and-return pair, "sound"
+	// (found in review).
+	freqLooseDegrees = 15
+	// freqLooseSigmas is how many of its sigmas the estimate may be off
+	// for freqLooseDegrees, and how far beyond the offset the ramp search
+	// may go then.
+	freqLooseSigmas = 2
 	// freqCheckUntrustedHz is the offset, Hz, beyond which an estimate
 	// from windows all walked one way is taken as the grid's, not the
 	// walk's (freqEstimate.trusted): over twice the largest the walk leaves
@@ -771,7 +790,7 @@ func logRate(s *ingest.Samples) float64 {
 // above), demodulates at the estimate. It returns the result, the window
 // used, the warnings to report (without the log's name) and the offsets of
 // the groups whose own frequency differs (wanderHints).
-func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, float64, []string, map[string]float64, error) {
+func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, float64, []string, freqHints, error) {
 	win := o.window
 	pl := demodPlan{mains: o.mains, fs: logRate(s)}
 	var lengthened string
@@ -786,7 +805,7 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 		if errors.As(err, &ill) && ill.Suggest > 0 {
 			err = fmt.Errorf("%w (--window %g)", err, math.Ceil(ill.Suggest*1000-1e-6)/1000)
 		}
-		return nil, 0, nil, nil, err
+		return nil, 0, nil, freqHints{}, err
 	}
 	if dropped != "" {
 		res.Warnings = append([]string{dropped}, res.Warnings...)
@@ -801,7 +820,7 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 		res.Warnings = append([]string{w}, res.Warnings...)
 	}
 	if len(res.Windows) == 0 {
-		return res, win, res.Warnings, nil, nil
+		return res, win, res.Warnings, freqHints{}, nil
 	}
 	// The signal's odd harmonics, locked to the fundamental, would pull
 	// every window's frequency the same way (the frequency column τ sin ωτ
@@ -828,7 +847,7 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 	if err != nil {
 		// The fixed-frequency demodulation went through; a failed check is
 		// worth a warning, not the run.
-		return res, win, append(res.Warnings, fmt.Sprintf("the AC frequency could not be checked (%v): the results assume the field runs at exactly %g Hz", err, o.freq)), nil, nil
+		return res, win, append(res.Warnings, fmt.Sprintf("the AC frequency could not be checked (%v): the results assume the field runs at exactly %g Hz", err, o.freq)), freqHints{}, nil
 	}
 	est, ok := estimateWindowFreq(fit.Windows, win)
 	if !ok {
@@ -836,13 +855,27 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 		if fit.FreqFailed > 0 {
 			w += fmt.Sprintf(" (the frequency fits of %d more windows failed, as where the field runs far from %g Hz: check --freq)", fit.FreqFailed, o.freq)
 		}
-		return res, win, append(res.Warnings, w), nil, nil
+		return res, win, append(res.Warnings, w), freqHints{}, nil
+	}
+	if n := len(fit.Windows) + fit.FreqFailed; fit.FreqFailed > 0 && freqFailedShare*float64(n) < float64(fit.FreqFailed) {
+		// A few failed fits are the noisiest windows (a traverse's weak
+		// ends); many say the check rests on what is left.
+		res.Warnings = append(res.Warnings, fmt.Sprintf("the frequency fits of %d of %d windows failed (windows dominated by noise, or fits drawn onto a mains line, or a field far from %g Hz) and were left out of the frequency check, which rests on the rest", fit.FreqFailed, n, o.freq))
 	}
 	off := est.freq - o.freq
 	span := longestGroupSpan(res.Windows, win)
 	turn := 360 * math.Abs(off) * span
 	if math.Abs(off) <= freqCheckSigmas*est.sigma || turn <= freqCheckDegrees {
-		return res, win, res.Warnings, wanderHints(fit.Windows, o.freq, win), nil
+		hints := freqHints{groups: wanderHints(fit.Windows, o.freq, win)}
+		// Not told from --freq, but perhaps not known well enough either:
+		// the offset plus its uncertainty may still turn the phase across
+		// a group by more than one phase per line can follow.
+		if allowed := 360 * (math.Abs(off) + freqLooseSigmas*est.sigma) * span; allowed > freqLooseDegrees {
+			hints.loose, hints.off = true, off
+			hints.bound = math.Abs(off) + freqLooseSigmas*est.sigma
+			return res, win, append(res.Warnings, looseWarning(est, o.freq, span, allowed)), hints, nil
+		}
+		return res, win, res.Warnings, hints, nil
 	}
 	dec := freqDecimals(est.sigma)
 	if !est.trusted && math.Abs(off) <= freqCheckUntrustedHz {
@@ -855,12 +888,12 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 		// "as if ... 49.9988 Hz"; found in review), and the warning's sigma
 		// counts it.
 		if math.Abs(off) <= freqWalkSpreads*est.spread {
-			return res, win, res.Warnings, wanderHints(fit.Windows, o.freq, win), nil
+			return res, win, res.Warnings, freqHints{groups: wanderHints(fit.Windows, o.freq, win)}, nil
 		}
 		sg := math.Hypot(est.sigma, est.spread)
 		d := freqDecimals(sg)
 		return res, win, append(res.Warnings, fmt.Sprintf(oneWayLead+" the AC field ran at %.*f ± %.*f Hz, not the %g Hz given (a turn of %.0f° across the longest group, %.1f s): the grid slightly off its frequency, or the phase changing along traverses all walked the same way where conductors of different phase overlap, which a log walked one way cannot tell apart; the results assume the %g Hz given (walk back and forth, or log a while standing still, to tell)",
-			d, est.freq, d, sg, o.freq, turn, span, o.freq)), wanderHints(fit.Windows, o.freq, win), nil
+			d, est.freq, d, sg, o.freq, turn, span, o.freq)), freqHints{groups: wanderHints(fit.Windows, o.freq, win)}, nil
 	}
 	// Beyond about a quarter of 1/window from --freq the windows' fits no
 	// longer converge reliably; an estimate out there is not to be trusted.
@@ -872,7 +905,7 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 				hint += fmt.Sprintf(", or a window too short to tell them apart (try --window %.1f or longer)", math.Ceil(10*calibrate.NuisanceSeparation(1)/d)/10)
 			}
 		}
-		return nil, 0, nil, nil, fmt.Errorf("%s: the AC field does not run at the %g Hz given: the windows' fitted frequencies average %.3f Hz, too far off for a %.3g s window to follow; give the field's frequency with --freq (about %.2f Hz)%s", s.Source, o.freq, est.freq, win, est.freq, hint)
+		return nil, 0, nil, freqHints{}, fmt.Errorf("%s: the AC field does not run at the %g Hz given: the windows' fitted frequencies average %.3f Hz, too far off for a %.3g s window to follow; give the field's frequency with --freq (about %.2f Hz)%s", s.Source, o.freq, est.freq, win, est.freq, hint)
 	}
 	// A window of whole cycles of --freq becomes the nearest whole number
 	// of cycles of the estimate: the windows' phasors are the path averages
@@ -886,7 +919,7 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 	harm2, dropped2 := pl.signalHarmonics(est.freq, win2)
 	again, err := pl.demodulate(s, est.freq, win2, harm2)
 	if err != nil {
-		return nil, 0, nil, nil, err
+		return nil, 0, nil, freqHints{}, err
 	}
 	if dropped2 != "" {
 		again.Warnings = append([]string{dropped2}, again.Warnings...)
@@ -896,7 +929,45 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 	}
 	warn := fmt.Sprintf("AC frequency estimated at %.*f ± %.*f Hz from %d windows, not the %g Hz given (at %g Hz the phase would turn %.0f° across the longest group, %.1f s, and the currents would read low); demodulated at %.*f Hz in %.4g s windows; the estimate's own uncertainty turns the phase by 360·σ·t, so phases compare between the conductors of a group, not between groups",
 		dec, est.freq, dec, est.sigma, est.windows, o.freq, o.freq, turn, span, dec, est.freq, win2)
-	return again, win2, append([]string{warn}, again.Warnings...), wanderHints(fit.Windows, est.freq, win2), nil
+	return again, win2, append([]string{warn}, again.Warnings...), freqHints{groups: wanderHints(fit.Windows, est.freq, win2)}, nil
+}
+
+// freqHints is what demodulateAC tells the groups' fits about the
+// frequency: where each group's phase-ramp search starts (fitRamp).
+type freqHints struct {
+	// groups holds, for each group whose own frequency differs from the one
+	// used, that frequency's offset, Hz (wanderHints).
+	groups map[string]float64
+	// loose is set when the frequency used is not known well enough to hold
+	// one phase across a group (freqLooseDegrees): every group then has its
+	// phase ramp searched for, as one demodulated at an estimate, starting
+	// from off (the log's estimate less the frequency used, Hz) unless
+	// groups gives its own, and out to bound Hz.
+	loose      bool
+	off, bound float64
+}
+
+// of returns the offset where group g's ramp search starts, Hz (0 for
+// none).
+func (h freqHints) of(g string) float64 {
+	if f, ok := h.groups[g]; ok {
+		return f
+	}
+	if h.loose {
+		return h.off
+	}
+	return 0
+}
+
+// looseWarning says that the frequency the windows give, est, is too
+// uncertain for one phase across a group of span seconds at freq Hz: its
+// offset plus freqLooseSigmas of its sigma allows a turn of allowed
+// degrees. It names what to do.
+func looseWarning(est freqEstimate, freq, span, allowed float64) string {
+	dec := freqDecimals(est.sigma)
+	need := freqLooseDegrees / 360.0 / span
+	return fmt.Sprintf("the AC frequency is not known well enough to hold the phase across a group: the windows put it at %.*f ± %.*f Hz, which does not tell it from the %g Hz given, yet allows the phase to turn up to %.0f° across the longest group (%.1f s), which one current and phase per line cannot follow (the currents then read low, or as phantom go-and-return pairs); each group was searched for a phase ramp (its notes give any found; phases then compare between the conductors of a group, not between groups), and the results assume %g Hz elsewhere. Give the tone's frequency with --freq to within %.2g Hz if the transmitter's is known that well, or split the traverses into shorter groups, or raise the signal (a stronger tone, or a longer log) so that the windows fix the frequency",
+		dec, est.freq, dec, est.sigma, freq, allowed, span, freq, need)
 }
 
 // oneWayLead starts the warning that a log walked one way seems off its

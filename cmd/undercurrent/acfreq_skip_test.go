@@ -13,19 +13,23 @@ import (
 // back and forth at 1 m/s with turns of turn s over a tracer cable (amps A
 // RMS at 20°, 1 m deep) and its return in a pipe (ret of its current at
 // retPhase degrees, 1.5 m deep, retNorth m north), with 30 A of 50 Hz
-// mains 3 m south (and a 4 A third harmonic on it when harm3 is set), at
-// 200 nT of reading noise per axis.
+// mains 3 m south (and harmAmps A at harmHz on it when harmAmps is not
+// 0), at noise nT of reading noise per axis.
 type tracerSite struct {
 	amps, length, turn, retNorth, ret, retPhase float64
 	count                                       int
-	harm3                                       bool
+	harmAmps, harmHz                            float64
+	noise                                       float64
 }
 
-// The layouts of the review's scenarios (rv15c): t128 (a 128 Hz tracer at
-// 1024 Hz) and t8k (a 1 A, 8 kHz tracer at 20 kHz).
+// The layouts of the review's scenarios (rv15c): base512 (an 8 A tracer
+// and its return beside 30 A of mains with a 4 A third harmonic, at 5 nT
+// of noise), t128 (the same at 200 nT) and t8k (a 1 A, 8 kHz tracer at
+// 200 nT).
 var (
-	site128 = tracerSite{amps: 8, length: 14, turn: 5, retNorth: 4, ret: 0.75, retPhase: -160, count: 5, harm3: true}
-	site8k  = tracerSite{amps: 1, length: 10, turn: 3, retNorth: 3, ret: 0.7, retPhase: -165, count: 2}
+	siteBase = tracerSite{amps: 8, length: 14, turn: 5, retNorth: 4, ret: 0.75, retPhase: -160, count: 5, harmAmps: 4, harmHz: 150, noise: 5}
+	site128  = tracerSite{amps: 8, length: 14, turn: 5, retNorth: 4, ret: 0.75, retPhase: -160, count: 5, harmAmps: 4, harmHz: 150, noise: 200}
+	site8k   = tracerSite{amps: 1, length: 10, turn: 3, retNorth: 3, ret: 0.7, retPhase: -165, count: 2, noise: 200}
 )
 
 // scenario is the layout's scenario with the tone at tone Hz, sampled at
@@ -44,7 +48,7 @@ field_nt = [-150.0, 19200.0, -45100.0]
 drift_nt_per_hour = [3.0, 18.0, -8.0]
 [sensor]
 height_m = 0.3
-noise_nt = 200
+noise_nt = %g
 sample_rate_hz = %g
 [survey]
 pattern = "traverses"
@@ -56,12 +60,12 @@ length_m = %g
 speed_m_s = 1.0
 turn_s = %g
 zigzag = true
-`, seed, rate, ts.count, ts.length, ts.turn)
+`, seed, ts.noise, rate, ts.count, ts.length, ts.turn)
 	text += walkLine("tracer cable", 0, -1, ts.amps, tone, 20)
 	text += walkLine("return pipe", ts.retNorth, -1.5, ts.ret*ts.amps, tone, ts.retPhase)
 	text += walkLine("mains cable", -3, -0.6, 30, 50, 0)
-	if ts.harm3 {
-		text += walkLine("mains 3rd", -3, -0.6, 4, 150, 30)
+	if ts.harmAmps != 0 {
+		text += walkLine("mains harmonic", -3, -0.6, ts.harmAmps, ts.harmHz, 30)
 	}
 	return text
 }
