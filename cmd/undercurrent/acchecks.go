@@ -9,6 +9,8 @@ import (
 	"strconv"
 	"strings"
 
+	"gonum.org/v1/gonum/mat"
+
 	"undercurrent/calibrate"
 	"undercurrent/ingest"
 )
@@ -654,22 +656,120 @@ func (pl demodPlan) nearestMains(f float64) (h, m float64, ok bool) {
 // one than windows of win seconds can fit apart
 // (calibrate.NuisanceSeparation): that line is not fitted and leaks into
 // the signal. "" when it does not, freq is itself a mains frequency or no
-// mains are fitted.
+// mains are fitted. (A harmonic folded from above the Nyquist frequency:
+// foldClash.)
 func (pl demodPlan) clash(freq, win float64) string {
-	h, m, ok := pl.nearestMains(freq)
-	if !ok || calibrate.MainsNuisance(freq, win, pl.fs, pl.mains, nil) == nil {
+	if calibrate.MainsNuisance(freq, win, pl.fs, pl.mains, nil) == nil {
 		return ""
 	}
-	d := math.Abs(freq - h*m)
 	sep := calibrate.NuisanceSeparation(win)
-	switch {
-	case d < 1e-9*freq:
-		return fmt.Sprintf("the signal's %g Hz is the %s of the %g Hz mains: a mains field there and the signal cannot be told apart, and its current will be read as the signal's; choose another frequency for the tracer if a mains field is near", freq, harmonicName(h), m)
-	case d < sep:
-		return fmt.Sprintf("the signal's %g Hz lies %.3g Hz from the %s of the %g Hz mains (%g Hz), closer than %.3g s windows can fit apart (%.3g Hz): a mains field there is not fitted and leaks into the signal as noise or phantom conductors; use --window %.1f or longer",
-			freq, d, harmonicName(h), m, h*m, win, sep, math.Ceil(10*calibrate.NuisanceSeparation(1)/d)/10)
+	if h, m, ok := pl.nearestMains(freq); ok {
+		d := math.Abs(freq - h*m)
+		switch {
+		case d < 1e-9*freq:
+			return fmt.Sprintf("the signal's %g Hz is the %s of the %g Hz mains: a mains field there and the signal cannot be told apart, and its current will be read as the signal's; choose another frequency for the tracer if a mains field is near", freq, harmonicName(h), m)
+		case d < sep:
+			return fmt.Sprintf("the signal's %g Hz lies %.3g Hz from the %s of the %g Hz mains (%g Hz), closer than %.3g s windows can fit apart (%.3g Hz): a mains field there is not fitted and leaks into the signal as noise or phantom conductors; use --window %.1f or longer",
+				freq, d, harmonicName(h), m, h*m, win, sep, separatingWindow(d))
+		}
 	}
 	return ""
+}
+
+// foldClash warns when a mains odd harmonic above the Nyquist frequency
+// folds (foldedMains) to within the separation of windows of win seconds
+// of the signal at freq, and a line is seen there in the log s
+// (lineNear, beside the windows res): not fitted, it leaks into the
+// signal and pulls its frequency check. At 1160 Hz sampling the 650 Hz
+// 13th harmonic of 50 Hz folds to 510 Hz, 2 Hz from a 512 Hz tracer; it
+// pulled the check to 511.974 Hz with nothing said (found in review).
+// Unlike a harmonic below Nyquist (clash), a folded one is named only
+// when seen: at the common rates many fold near any tone (at 2 kHz the
+// 25th harmonic of 60 Hz folds to 500 Hz), and most loggers filter them
+// out before sampling. "" when none is, or no mains are fitted.
+func (pl demodPlan) foldClash(s *ingest.Samples, res *calibrate.DemodResult, freq, win float64) string {
+	if calibrate.MainsNuisance(freq, win, pl.fs, pl.mains, nil) == nil {
+		return ""
+	}
+	sep := calibrate.NuisanceSeparation(win)
+	h, m, a, ok := pl.foldedMains(freq, sep)
+	if !ok {
+		return ""
+	}
+	share, seen := pl.lineNear(s, res, a, freq)
+	if !seen {
+		return ""
+	}
+	d := math.Abs(freq - a)
+	how := fmt.Sprintf("; log at another rate, or through an anti-alias filter, or use --window %.1f or longer", separatingWindow(d))
+	if d < 1e-9*freq {
+		how = "; log at another rate, or through an anti-alias filter"
+	}
+	return fmt.Sprintf("at the log's %.5g Hz sampling the %s of the %g Hz mains (%g Hz), above the Nyquist frequency, folds to %.4g Hz, %.3g Hz from the signal's %g Hz, closer than %.3g s windows can fit apart (%.3g Hz), and a line is there (%.2g times the signal where it is strongest): it is not fitted, leaks into the signal as noise or phantom conductors, and pulls the frequency check%s",
+		pl.fs, harmonicName(h), m, h*m, a, d, freq, win, sep, share, how)
+}
+
+// separatingWindow is the window, s, rounded up to 0.1 s, in which two
+// lines d Hz apart are fitted apart (calibrate.NuisanceSeparation).
+func separatingWindow(d float64) float64 {
+	return math.Ceil(10*calibrate.NuisanceSeparation(1)/d) / 10
+}
+
+// foldedMainsOrder is the highest order of the mains' odd harmonics that
+// foldedMains folds: the 50th order is as far as the harmonic limits of
+// IEC 61000-3-2 and the measurements of IEC 61000-4-7 reach (from
+// memory).
+const foldedMainsOrder = 49
+
+// foldedMains returns the odd harmonic h of a mains frequency m (of
+// pl.mains), at or above 0.45 of the sample rate (those below are fitted
+// or named as they are) and up to foldedMainsOrder, whose alias a in the
+// log, |h·m - k·fs| folded into [0, fs/2], lies nearest f, when within sep
+// Hz of it; false when none does.
+func (pl demodPlan) foldedMains(f, sep float64) (h, m, a float64, ok bool) {
+	if !(pl.fs > 0) {
+		return 0, 0, 0, false
+	}
+	best := sep
+	for _, mm := range pl.mains {
+		for hh := 1.0; hh <= foldedMainsOrder; hh += 2 {
+			if hh*mm < 0.45*pl.fs {
+				continue
+			}
+			al := math.Mod(hh*mm, pl.fs)
+			if al > pl.fs/2 {
+				al = pl.fs - al
+			}
+			if d := math.Abs(f - al); d < best {
+				best, h, m, a, ok = d, hh, mm, al, true
+			}
+		}
+	}
+	return h, m, a, ok
+}
+
+// pull returns the mains line (a harmonic, or one folded from above the
+// Nyquist frequency) that lies within the separation of windows of win
+// seconds of freq, and is seen in the log s beside the signal at signal
+// Hz (lineNear, near res's strongest window), and so pulls a window's
+// fitted frequency towards it: its frequency in the log, Hz, and its
+// name; ok false when none does (or no mains are fitted).
+func (pl demodPlan) pull(s *ingest.Samples, res *calibrate.DemodResult, freq, signal, win float64) (at float64, name string, ok bool) {
+	if calibrate.MainsNuisance(freq, win, pl.fs, pl.mains, nil) == nil {
+		return 0, "", false
+	}
+	sep := calibrate.NuisanceSeparation(win)
+	if h, m, ok := pl.nearestMains(freq); ok && math.Abs(freq-h*m) < sep {
+		if _, seen := pl.lineNear(s, res, h*m, signal); seen {
+			return h * m, fmt.Sprintf("the %s of the %g Hz mains (%g Hz)", harmonicName(h), m, h*m), true
+		}
+	}
+	if h, m, a, ok := pl.foldedMains(freq, sep); ok {
+		if _, seen := pl.lineNear(s, res, a, signal); seen {
+			return a, fmt.Sprintf("the %s of the %g Hz mains (%g Hz, folded to %.4g Hz at the log's %.5g Hz sampling)", harmonicName(h), m, h*m, a, pl.fs), true
+		}
+	}
+	return 0, "", false
 }
 
 // apart returns the harmonics of h whose frequencies (times freq) lie at
@@ -735,7 +835,7 @@ func (pl demodPlan) unfitted(s *ingest.Samples, freq float64) string {
 				}
 				have = strings.Join(parts, ",")
 			}
-			return fmt.Sprintf("a %g Hz field of %.3g nT peak is in the log, stronger than the %g Hz signal, but --mains %s does not fit it: it leaks into the signal as noise; give --mains %g (or 50,60)", m, a, freq, have, m)
+			return fmt.Sprintf("a %g Hz field of %.3g nT peak is in the log, stronger than the %.7g Hz signal, but --mains %s does not fit it: it leaks into the signal as noise; give --mains %g (or 50,60)", m, a, freq, have, m)
 		}
 	}
 	return ""
@@ -816,6 +916,9 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 	if w := pl.clash(o.freq, win); w != "" {
 		res.Warnings = append([]string{w}, res.Warnings...)
 	}
+	if w := pl.foldClash(s, res, o.freq, win); w != "" {
+		res.Warnings = append([]string{w}, res.Warnings...)
+	}
 	if w := pl.unfitted(s, o.freq); w != "" {
 		res.Warnings = append([]string{w}, res.Warnings...)
 	}
@@ -857,10 +960,12 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 		}
 		return res, win, append(res.Warnings, w), freqHints{}, nil
 	}
+	var failedShare string
 	if n := len(fit.Windows) + fit.FreqFailed; fit.FreqFailed > 0 && freqFailedShare*float64(n) < float64(fit.FreqFailed) {
 		// A few failed fits are the noisiest windows (a traverse's weak
 		// ends); many say the check rests on what is left.
-		res.Warnings = append(res.Warnings, fmt.Sprintf("the frequency fits of %d of %d windows failed (windows dominated by noise, or fits drawn onto a mains line, or a field far from %g Hz) and were left out of the frequency check, which rests on the rest", fit.FreqFailed, n, o.freq))
+		failedShare = fmt.Sprintf("the frequency fits of %d of %d windows failed (windows dominated by noise, or fits drawn onto a mains line, or a field far from %g Hz) and were left out of the frequency check, which rests on the rest", fit.FreqFailed, n, o.freq)
+		res.Warnings = append(res.Warnings, failedShare)
 	}
 	off := est.freq - o.freq
 	span := longestGroupSpan(res.Windows, win)
@@ -907,6 +1012,28 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 		}
 		return nil, 0, nil, freqHints{}, fmt.Errorf("%s: the AC field does not run at the %g Hz given: the windows' fitted frequencies average %.3f Hz, too far off for a %.3g s window to follow; give the field's frequency with --freq (about %.2f Hz)%s", s.Source, o.freq, est.freq, win, est.freq, hint)
 	}
+	// A mains line within the windows' separation of --freq (or of the
+	// estimate) is not fitted, and pulls every window's frequency the same
+	// way, which the estimate's sigma (from the windows' scatter) does not
+	// see: a 645 Hz tone beside a 650 Hz 13th harmonic read 645.185 ±
+	// 0.003 Hz, and demodulated there every traverse was nonsense, with
+	// the warning naming the harmonic dropped (found in review). Such an
+	// estimate is not acted on: the run stays at --freq and says why, and
+	// which window fits the two apart. A signal given on a mains line
+	// itself (--freq 150 for the 3rd harmonic) is that line, and follows
+	// the grid off its nominal as before.
+	for _, f := range []float64{o.freq, est.freq} {
+		if h, m, ok := pl.nearestMains(o.freq); ok && math.Abs(o.freq-h*m) < 1e-9*o.freq {
+			break
+		}
+		at, name, ok := pl.pull(s, res, f, o.freq, win)
+		if !ok {
+			continue
+		}
+		d := math.Max(math.Abs(o.freq-at), math.Abs(est.freq-at))
+		return res, win, append(res.Warnings, fmt.Sprintf("the windows' fitted frequencies put the AC field at %.*f ± %.*f Hz, not the %g Hz given, but %s lies too near for %.3g s windows to fit it apart, and pulls every window's frequency towards it: the estimate is not trusted, and the results assume the %g Hz given; use --window %.1f or longer to fit the two apart (the frequency is then checked without the pull)",
+			dec, est.freq, dec, est.sigma, o.freq, name, win, o.freq, separatingWindow(d))), freqHints{}, nil
+	}
 	// A window of whole cycles of --freq becomes the nearest whole number
 	// of cycles of the estimate: the windows' phasors are the path averages
 	// the fit models only over whole cycles (calibrate.Window.Travel). Any
@@ -927,6 +1054,20 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 	if lengthened != "" {
 		again.Warnings = append([]string{lengthened}, again.Warnings...)
 	}
+	// The warnings about the mains beside the signal hold at the estimate
+	// as at --freq, and are computed afresh there: before, they were
+	// dropped with the first demodulation, a strong 50 Hz field left
+	// unfitted by --mains 60 among them (found in review).
+	if w := pl.clash(est.freq, win2); w != "" {
+		again.Warnings = append([]string{w}, again.Warnings...)
+	}
+	if w := pl.foldClash(s, again, est.freq, win2); w != "" {
+		again.Warnings = append([]string{w}, again.Warnings...)
+	}
+	if w := pl.unfitted(s, est.freq); w != "" {
+		again.Warnings = append([]string{w}, again.Warnings...)
+	}
+	again.Warnings = appendNonEmpty(again.Warnings, failedShare)
 	warn := fmt.Sprintf("AC frequency estimated at %.*f ± %.*f Hz from %d windows, not the %g Hz given (at %g Hz the phase would turn %.0f° across the longest group, %.1f s, and the currents would read low); demodulated at %.*f Hz in %.4g s windows; the estimate's own uncertainty turns the phase by 360·σ·t, so phases compare between the conductors of a group, not between groups",
 		dec, est.freq, dec, est.sigma, est.windows, o.freq, o.freq, turn, span, dec, est.freq, win2)
 	return again, win2, append([]string{warn}, again.Warnings...), freqHints{groups: wanderHints(fit.Windows, est.freq, win2)}, nil
@@ -1030,4 +1171,99 @@ func groupWander(ws []calibrate.Window, freq, window float64) map[string]float64
 		bad[k] = est.freq
 	}
 	return bad
+}
+
+// lineShare is the least amplitude, as a share of the signal's, at which
+// lineNear takes a line beside the signal as present; lineSNR the least
+// multiple of its own sigma.
+const (
+	lineShare = 0.02
+	lineSNR   = 10
+)
+
+// lineNear reports whether the log holds a line at at Hz (as the log
+// shows it: a folded line at its alias) beside the signal at freq Hz:
+// where the signal is strongest (res's window of the largest field), the
+// readings over max(1 s, 2.5/|at - freq|) (at most 8 s, within that
+// window's group) are fitted per axis with a constant and a slope, the
+// signal's sine and cosine with their linear change, and the line's sine
+// and cosine, and the line's amplitude must reach lineShare of the
+// signal's and lineSNR of its own sigma. A mains line's frequencies are
+// fixed by the mains and the sampling, whether or not a field there is in
+// the log: the warnings that name one do so in any case, while acting on
+// it (holding the frequency at --freq) waits for the line to be seen.
+// share is the line's amplitude over the signal's.
+func (pl demodPlan) lineNear(s *ingest.Samples, res *calibrate.DemodResult, at, freq float64) (share float64, ok bool) {
+	if res == nil || len(res.Windows) == 0 || s.Len() < 64 {
+		return 0, false
+	}
+	best, bw := -1.0, res.Windows[0]
+	for _, w := range res.Windows {
+		if e := abs(w.B[0])*abs(w.B[0]) + abs(w.B[1])*abs(w.B[1]) + abs(w.B[2])*abs(w.B[2]); e > best {
+			best, bw = e, w
+		}
+	}
+	span := math.Min(8, math.Max(1, 2.5/math.Max(math.Abs(at-freq), 1e-9)))
+	var rows []int
+	for i, t := range s.Time {
+		if math.Abs(t-bw.Time) <= span/2 && (s.Group == nil || s.Group[i] == bw.Group) {
+			rows = append(rows, i)
+		}
+	}
+	// The mains lines the windows fit beside the signal are fitted here
+	// too, with their linear change, lest their walked change read as the
+	// line.
+	var others []float64
+	for _, f := range calibrate.MainsNuisance(freq, mainsWindowStep, pl.fs, pl.mains, nil) { // as in 0.1 s windows
+		if math.Abs(f-at) > 1 {
+			others = append(others, f)
+		}
+	}
+	p := 10 + 4*len(others)
+	if len(rows) < 4*p {
+		return 0, false
+	}
+	x := mat.NewDense(len(rows), p, nil)
+	row := make([]float64, p)
+	for r, i := range rows {
+		tau := s.Time[i] - bw.Time
+		cs, ss := math.Cos(2*math.Pi*freq*tau), math.Sin(2*math.Pi*freq*tau)
+		cl, sl := math.Cos(2*math.Pi*at*tau), math.Sin(2*math.Pi*at*tau)
+		u := 2 * tau / span
+		q := u*u - 1.0/3
+		copy(row, []float64{1, u, cs, ss, u * cs, u * ss, q * cs, q * ss, cl, sl})
+		for k, f := range others {
+			c, sn := math.Cos(2*math.Pi*f*tau), math.Sin(2*math.Pi*f*tau)
+			row[10+4*k], row[11+4*k], row[12+4*k], row[13+4*k] = c, sn, u*c, u*sn
+		}
+		x.SetRow(r, row)
+	}
+	var qr mat.QR
+	qr.Factorize(x)
+	var sig, line, noise float64
+	for _, col := range [][]float64{s.Bx, s.By, s.Bz} {
+		y := mat.NewVecDense(len(rows), nil)
+		for r, i := range rows {
+			y.SetVec(r, col[i])
+		}
+		var b mat.VecDense
+		if err := qr.SolveVecTo(&b, false, y); err != nil {
+			return 0, false
+		}
+		var fit mat.VecDense
+		fit.MulVec(x, &b)
+		var rss float64
+		for r := range rows {
+			d := y.AtVec(r) - fit.AtVec(r)
+			rss += d * d
+		}
+		sig = math.Hypot(sig, math.Hypot(b.AtVec(2), b.AtVec(3)))
+		line = math.Hypot(line, math.Hypot(b.AtVec(8), b.AtVec(9)))
+		// A sine's coefficient has about 2σ²/n of variance (IEEE Std 1057).
+		noise = math.Hypot(noise, math.Sqrt(2*rss/float64(len(rows)-p)/float64(len(rows))))
+	}
+	if !(sig > 0) {
+		return 0, false
+	}
+	return line / sig, line >= lineShare*sig && line >= lineSNR*noise
 }
