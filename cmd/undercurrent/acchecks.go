@@ -1030,9 +1030,17 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 		if !ok {
 			continue
 		}
-		d := math.Max(math.Abs(o.freq-at), math.Abs(est.freq-at))
+		d := math.Min(math.Abs(o.freq-at), math.Abs(est.freq-at))
 		return res, win, append(res.Warnings, fmt.Sprintf("the windows' fitted frequencies put the AC field at %.*f ± %.*f Hz, not the %g Hz given, but %s lies too near for %.3g s windows to fit it apart, and pulls every window's frequency towards it: the estimate is not trusted, and the results assume the %g Hz given; use --window %.1f or longer to fit the two apart (the frequency is then checked without the pull)",
 			dec, est.freq, dec, est.sigma, o.freq, name, win, o.freq, separatingWindow(d))), freqHints{}, nil
+	}
+	// So does a second line that is not the mains: another tone, a
+	// neighbouring circuit's (a 5 A line at 516 Hz 3 m from a 512 Hz
+	// tracer put the estimate at 512.239 ± 0.003 Hz; found in review).
+	if at, share, ok := pl.neighbourLine(s, res, o.freq, est.freq, win); ok {
+		d := math.Min(math.Abs(o.freq-at), math.Abs(est.freq-at))
+		return res, win, append(res.Warnings, fmt.Sprintf("the windows' fitted frequencies put the AC field at %.*f ± %.*f Hz, not the %g Hz given, but the log holds a second line at about %.1f Hz (%.2g times the signal where that is strongest), too near for %.3g s windows to fit apart, which pulls every window's frequency towards it: the estimate is not trusted, and the results assume the %g Hz given; use --window %.1f or longer to fit the two apart (the frequency is then checked without the pull), and check that the line at %.1f Hz is not the one to locate",
+			dec, est.freq, dec, est.sigma, o.freq, at, share, win, o.freq, separatingWindow(d), at)), freqHints{}, nil
 	}
 	// A window of whole cycles of --freq becomes the nearest whole number
 	// of cycles of the estimate: the windows' phasors are the path averages
@@ -1174,28 +1182,40 @@ func groupWander(ws []calibrate.Window, freq, window float64) map[string]float64
 }
 
 // lineShare is the least amplitude, as a share of the signal's, at which
-// lineNear takes a line beside the signal as present; lineSNR the least
-// multiple of its own sigma.
+// a lineProbe takes a line beside the signal as present; lineSNR the
+// least multiple of its own sigma. Set on the review's logs: a line in
+// the log at 0.10-0.27 of the signal and 140-630 of its sigmas, none at
+// 0.003 and 6.
 const (
 	lineShare = 0.02
 	lineSNR   = 10
 )
 
-// lineNear reports whether the log holds a line at at Hz (as the log
-// shows it: a folded line at its alias) beside the signal at freq Hz:
-// where the signal is strongest (res's window of the largest field), the
-// readings over max(1 s, 2.5/|at - freq|) (at most 8 s, within that
-// window's group) are fitted per axis with a constant and a slope, the
-// signal's sine and cosine with their linear change, and the line's sine
-// and cosine, and the line's amplitude must reach lineShare of the
-// signal's and lineSNR of its own sigma. A mains line's frequencies are
-// fixed by the mains and the sampling, whether or not a field there is in
-// the log: the warnings that name one do so in any case, while acting on
-// it (holding the frequency at --freq) waits for the line to be seen.
-// share is the line's amplitude over the signal's.
-func (pl demodPlan) lineNear(s *ingest.Samples, res *calibrate.DemodResult, at, freq float64) (share float64, ok bool) {
+// lineProbe looks for lines beside the signal in the readings about the
+// signal's strongest window. A mains line's frequencies are fixed by the
+// mains and the sampling, whether or not a field there is in the log:
+// the warnings that name a harmonic below the Nyquist frequency do so in
+// any case, while acting on a line (holding the frequency at --freq), or
+// naming one folded from above the Nyquist frequency, waits for it to be
+// seen.
+type lineProbe struct {
+	x      *mat.Dense // the base columns at the rows taken
+	qr     mat.QR
+	tau    []float64    // the rows' times from the centre, s
+	resid  [3][]float64 // each axis's residual after the base fit
+	sig    float64      // the signal's amplitude over the axes
+	others []float64    // the mains lines in the base, Hz
+}
+
+// newLineProbe fits the readings of s within span/2 s of the centre of
+// res's window of the largest field (in its group) per axis with the
+// base: a constant and a slope, the signal's sine and cosine at signal Hz
+// with their linear and quadratic change, and the mains lines fitted
+// beside it (calibrate.MainsNuisance in 0.1 s windows) with their linear
+// change. Nil when there is too little to fit.
+func (pl demodPlan) newLineProbe(s *ingest.Samples, res *calibrate.DemodResult, signal, span float64) *lineProbe {
 	if res == nil || len(res.Windows) == 0 || s.Len() < 64 {
-		return 0, false
+		return nil
 	}
 	best, bw := -1.0, res.Windows[0]
 	for _, w := range res.Windows {
@@ -1203,67 +1223,179 @@ func (pl demodPlan) lineNear(s *ingest.Samples, res *calibrate.DemodResult, at, 
 			best, bw = e, w
 		}
 	}
-	span := math.Min(8, math.Max(1, 2.5/math.Max(math.Abs(at-freq), 1e-9)))
 	var rows []int
 	for i, t := range s.Time {
 		if math.Abs(t-bw.Time) <= span/2 && (s.Group == nil || s.Group[i] == bw.Group) {
 			rows = append(rows, i)
 		}
 	}
-	// The mains lines the windows fit beside the signal are fitted here
-	// too, with their linear change, lest their walked change read as the
-	// line.
-	var others []float64
-	for _, f := range calibrate.MainsNuisance(freq, mainsWindowStep, pl.fs, pl.mains, nil) { // as in 0.1 s windows
-		if math.Abs(f-at) > 1 {
-			others = append(others, f)
-		}
+	lp := &lineProbe{others: calibrate.MainsNuisance(signal, mainsWindowStep, pl.fs, pl.mains, nil)}
+	p := 8 + 4*len(lp.others)
+	if len(rows) < 4*(p+2) {
+		return nil
 	}
-	p := 10 + 4*len(others)
-	if len(rows) < 4*p {
-		return 0, false
-	}
-	x := mat.NewDense(len(rows), p, nil)
+	lp.x = mat.NewDense(len(rows), p, nil)
+	lp.tau = make([]float64, len(rows))
 	row := make([]float64, p)
 	for r, i := range rows {
 		tau := s.Time[i] - bw.Time
-		cs, ss := math.Cos(2*math.Pi*freq*tau), math.Sin(2*math.Pi*freq*tau)
-		cl, sl := math.Cos(2*math.Pi*at*tau), math.Sin(2*math.Pi*at*tau)
+		lp.tau[r] = tau
+		cs, ss := math.Cos(2*math.Pi*signal*tau), math.Sin(2*math.Pi*signal*tau)
 		u := 2 * tau / span
 		q := u*u - 1.0/3
-		copy(row, []float64{1, u, cs, ss, u * cs, u * ss, q * cs, q * ss, cl, sl})
-		for k, f := range others {
+		copy(row, []float64{1, u, cs, ss, u * cs, u * ss, q * cs, q * ss})
+		for k, f := range lp.others {
 			c, sn := math.Cos(2*math.Pi*f*tau), math.Sin(2*math.Pi*f*tau)
-			row[10+4*k], row[11+4*k], row[12+4*k], row[13+4*k] = c, sn, u*c, u*sn
+			row[8+4*k], row[9+4*k], row[10+4*k], row[11+4*k] = c, sn, u*c, u*sn
 		}
-		x.SetRow(r, row)
+		lp.x.SetRow(r, row)
 	}
-	var qr mat.QR
-	qr.Factorize(x)
-	var sig, line, noise float64
-	for _, col := range [][]float64{s.Bx, s.By, s.Bz} {
+	lp.qr.Factorize(lp.x)
+	for k, col := range [][]float64{s.Bx, s.By, s.Bz} {
 		y := mat.NewVecDense(len(rows), nil)
 		for r, i := range rows {
 			y.SetVec(r, col[i])
 		}
-		var b mat.VecDense
-		if err := qr.SolveVecTo(&b, false, y); err != nil {
+		var b, fit mat.VecDense
+		if err := lp.qr.SolveVecTo(&b, false, y); err != nil {
+			return nil
+		}
+		fit.MulVec(lp.x, &b)
+		lp.resid[k] = make([]float64, len(rows))
+		for r := range rows {
+			lp.resid[k][r] = y.AtVec(r) - fit.AtVec(r)
+		}
+		lp.sig = math.Hypot(lp.sig, math.Hypot(b.AtVec(2), b.AtVec(3)))
+	}
+	if !(lp.sig > 0) {
+		return nil
+	}
+	return lp
+}
+
+// test reports whether a line at at Hz (as the log shows it: a folded
+// line at its alias) is in the readings: its sine and cosine, made
+// orthogonal to the base, fitted to each axis's residual, must reach
+// lineShare of the signal's amplitude and lineSNR of their own sigma (a
+// sine's coefficient has about 2σ²/n of variance, IEEE Std 1057). share
+// is the line's amplitude over the signal's.
+func (lp *lineProbe) test(at float64) (share float64, ok bool) {
+	for _, f := range lp.others {
+		if math.Abs(f-at) < 1 {
 			return 0, false
 		}
-		var fit mat.VecDense
-		fit.MulVec(x, &b)
-		var rss float64
-		for r := range rows {
-			d := y.AtVec(r) - fit.AtVec(r)
-			rss += d * d
-		}
-		sig = math.Hypot(sig, math.Hypot(b.AtVec(2), b.AtVec(3)))
-		line = math.Hypot(line, math.Hypot(b.AtVec(8), b.AtVec(9)))
-		// A sine's coefficient has about 2σ²/n of variance (IEEE Std 1057).
-		noise = math.Hypot(noise, math.Sqrt(2*rss/float64(len(rows)-p)/float64(len(rows))))
 	}
-	if !(sig > 0) {
+	n := len(lp.tau)
+	z := mat.NewDense(n, 2, nil)
+	for r, tau := range lp.tau {
+		z.Set(r, 0, math.Cos(2*math.Pi*at*tau))
+		z.Set(r, 1, math.Sin(2*math.Pi*at*tau))
+	}
+	var b, fit mat.Dense
+	if err := lp.qr.SolveTo(&b, false, z); err != nil {
 		return 0, false
 	}
-	return line / sig, line >= lineShare*sig && line >= lineSNR*noise
+	fit.Mul(lp.x, &b)
+	z.Sub(z, &fit)
+	var g00, g01, g11 float64
+	for r := 0; r < n; r++ {
+		c, sn := z.At(r, 0), z.At(r, 1)
+		g00 += c * c
+		g01 += c * sn
+		g11 += sn * sn
+	}
+	det := g00*g11 - g01*g01
+	if !(det > 1e-9*g00*g11) {
+		return 0, false
+	}
+	_, p := lp.x.Dims()
+	var line, noise float64
+	for k := range lp.resid {
+		var zc, zs, rr float64
+		for r, v := range lp.resid[k] {
+			zc += z.At(r, 0) * v
+			zs += z.At(r, 1) * v
+			rr += v * v
+		}
+		a := (g11*zc - g01*zs) / det
+		bb := (g00*zs - g01*zc) / det
+		rss := math.Max(0, rr-(a*zc+bb*zs))
+		line = math.Hypot(line, math.Hypot(a, bb))
+		noise = math.Hypot(noise, math.Sqrt(2*rss/float64(n-p-2)/float64(n)))
+	}
+	share = line / lp.sig
+	return share, line >= lineShare*lp.sig && line >= lineSNR*noise
+}
+
+// lineNear reports whether the log holds a line at at Hz beside the
+// signal at freq Hz (lineProbe.test), looked for over max(1 s,
+// 2.5/|at - freq|), at most 8 s: two and a half beats of the two.
+func (pl demodPlan) lineNear(s *ingest.Samples, res *calibrate.DemodResult, at, freq float64) (share float64, ok bool) {
+	span := math.Min(8, math.Max(1, 2.5/math.Max(math.Abs(at-freq), 1e-9)))
+	lp := pl.newLineProbe(s, res, freq, span)
+	if lp == nil {
+		return 0, false
+	}
+	return lp.test(at)
+}
+
+// neighbourStep is the step, Hz, of the frequencies neighbourLine tries.
+const neighbourStep = 0.5
+
+// neighbourLine looks in the log s for a line that is not the mains
+// within the separation of windows of win seconds of freq or est (the
+// frequency given and the one the windows put the signal at), at least
+// 2 Hz from both (nearer, the signal's own change along the walk spreads
+// it): a lineProbe over 1.25 s (2.5 beats of a line 2 Hz off) tests
+// every neighbourStep, the signal taken at est, and a
+// line is one that passes lineNear's test and stands above the
+// frequencies either side. The mains lines (harmonics, folded ones, and
+// those fitted beside the signal) are left to pull. It returns the
+// strongest such line's frequency and its share of the signal; false
+// when there is none, or freq is itself a mains frequency.
+func (pl demodPlan) neighbourLine(s *ingest.Samples, res *calibrate.DemodResult, freq, est, win float64) (at, share float64, ok bool) {
+	nuis := calibrate.MainsNuisance(freq, win, pl.fs, pl.mains, nil)
+	if nuis == nil {
+		return 0, 0, false
+	}
+	sep := calibrate.NuisanceSeparation(win)
+	lo, hi := math.Min(freq, est)-sep, math.Max(freq, est)+sep
+	mainsNear := func(f float64) bool {
+		for _, n := range nuis {
+			if math.Abs(f-n) < 1 {
+				return true
+			}
+		}
+		if h, m, ok := pl.nearestMains(f); ok && math.Abs(f-h*m) < 1 {
+			return true
+		}
+		_, _, _, ok := pl.foldedMains(f, 1)
+		return ok
+	}
+	// One probe for every step, over 2.5 beats of a line 2 Hz off.
+	lp := pl.newLineProbe(s, res, est, 1.25)
+	if lp == nil {
+		return 0, 0, false
+	}
+	var fs, shares []float64
+	var seen []bool
+	for f := lo + neighbourStep; f < hi; f += neighbourStep {
+		if f <= 0 || f >= 0.45*pl.fs {
+			continue
+		}
+		sh, ok := 0.0, false
+		if math.Abs(f-freq) >= 2 && math.Abs(f-est) >= 2 && !mainsNear(f) {
+			sh, ok = lp.test(f)
+		}
+		fs, shares, seen = append(fs, f), append(shares, sh), append(seen, ok)
+	}
+	for i := range fs {
+		if !seen[i] || (i > 0 && shares[i-1] > shares[i]) || (i+1 < len(fs) && shares[i+1] > shares[i]) {
+			continue
+		}
+		if shares[i] > share {
+			at, share, ok = fs[i], shares[i], true
+		}
+	}
+	return at, share, ok
 }
