@@ -47,8 +47,14 @@ import (
 // demodulates at the estimate instead (in windows of the same whole number
 // of cycles) and says so in a warning; from a log walked one way only it
 // does so only beyond freqCheckUntrustedHz, and below that warns (see
-// freqEstimate.trusted). Beyond a quarter of 1/window it refuses. Each
-// group's own frequency is then checked against the one used (groupWander).
+// freqEstimate.trusted). Beyond a quarter of 1/window it refuses. An
+// estimate that a line within the windows' separation may have pulled (a
+// mains harmonic, one folded from above Nyquist, or a second line, seen
+// in the log: lineProbe) is not acted on: the run stays at --freq and
+// says why. An estimate not clearly off but too uncertain for one phase
+// across a group (freqLooseDegrees) is warned about, and every group's
+// phase ramp searched for (freqHints). Each group's own frequency is then
+// checked against the one used (groupWander).
 // Exact-frequency logs are demodulated exactly as before (the demo's
 // results do not change).
 
