@@ -75,7 +75,8 @@ type DemodSettings struct {
 	// SkipFailedFreq, with EstimateFreq, leaves out a window whose
 	// four-parameter fit fails (its frequency runs off to zero or below,
 	// or its frequency column is degenerate, as where the field runs far
-	// from Freq) instead of failing the whole demodulation;
+	// from Freq, or the basis at the fitted frequency is singular, as where
+	// a noisy window's fit lands on a fitted mains line) instead of failing the whole demodulation;
 	// DemodResult.FreqFailed counts them.
 	SkipFailedFreq bool
 	// Window is the window length, s. Zero means ten cycles of Freq.
@@ -1235,7 +1236,17 @@ func (d *demodulator) window(lo, hi int) error {
 		var err2 error
 		tpl, err2 = d.generalTemplate(&d.fit.times, f, grid)
 		if err2 != nil {
-			return fmt.Errorf("calibrate: demodulate: window at rows %d-%d: %w", lo, hi-1, err2)
+			// The fit may converge where the window's basis is singular (a
+			// noisy window's fit drawn onto a fitted mains line: a 128 Hz
+			// tone at 200 nT noise reached 149.94 Hz beside the 150 Hz
+			// nuisance columns); with SkipFailedFreq that window is left
+			// out like any failed fit. Before, it gave up the check for
+			// the whole log (found in review).
+			err2 = fmt.Errorf("calibrate: demodulate: window at rows %d-%d (t = %s, frequency fitted at %.4g Hz): %w", lo, hi-1, fmtTime(t0), f, err2)
+			if set.SkipFailedFreq {
+				return &freqFitFailed{err2}
+			}
+			return err2
 		}
 		d.res.General++
 	} else if d.uniform(lo, hi) {

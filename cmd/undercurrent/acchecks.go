@@ -9,6 +9,8 @@ import (
 	"strconv"
 	"strings"
 
+	"gonum.org/v1/gonum/mat"
+
 	"undercurrent/calibrate"
 	"undercurrent/ingest"
 )
@@ -45,8 +47,14 @@ import (
 // demodulates at the estimate instead (in windows of the same whole number
 // of cycles) and says so in a warning; from a log walked one way only it
 // does so only beyond freqCheckUntrustedHz, and below that warns (see
-// freqEstimate.trusted). Beyond a quarter of 1/window it refuses. Each
-// group's own frequency is then checked against the one used (groupWander).
+// freqEstimate.trusted). Beyond a quarter of 1/window it refuses. An
+// estimate that a line within the windows' separation may have pulled (a
+// mains harmonic, one folded from above Nyquist, or a second line, seen
+// in the log: lineProbe) is not acted on: the run stays at --freq and
+// says why. An estimate not clearly off but too uncertain for one phase
+// across a group (freqLooseDegrees) is warned about, and every group's
+// phase ramp searched for (freqHints). Each group's own frequency is then
+// checked against the one used (groupWander).
 // Exact-frequency logs are demodulated exactly as before (the demo's
 // results do not change).
 
@@ -65,6 +73,25 @@ const (
 	// freqCheckDegrees is the phase turn across the longest group that an
 	// error in the frequency may cause before locate acts on it.
 	freqCheckDegrees = 2
+	// freqFailedShare is the share of the windows whose frequency fits may
+	// fail (and are left out: calibrate.DemodSettings.SkipFailedFreq)
+	// before locate says so.
+	freqFailedShare = 0.1
+	// freqLooseDegrees is the phase turn across the longest group that the
+	// estimate's offset from --freq plus freqLooseSigmas of its sigma may
+	// allow, when the offset itself is not significant, before locate says
+	// the frequency is not known well enough for one phase per group and
+	// searches every group for a phase ramp (freqHints.loose). An 8 kHz
+	// tone 0.05 Hz off --freq at 200 nT reading noise read 8000.079 ±
+	// 0.032 Hz from its windows, 2.5 sigmas off and so taken as 8000 Hz
+	// with no word, while 0.05 Hz turned the phase 180° across each 10 s
+	// traverse: every traverse became a phantom go-and-return pair, "sound"
+	// (found in review).
+	freqLooseDegrees = 15
+	// freqLooseSigmas is how many of its sigmas the estimate may be off
+	// for freqLooseDegrees, and how far beyond the offset the ramp search
+	// may go then.
+	freqLooseSigmas = 2
 	// freqCheckUntrustedHz is the offset, Hz, beyond which an estimate
 	// from windows all walked one way is taken as the grid's, not the
 	// walk's (freqEstimate.trusted): over twice the largest the walk leaves
@@ -635,22 +662,120 @@ func (pl demodPlan) nearestMains(f float64) (h, m float64, ok bool) {
 // one than windows of win seconds can fit apart
 // (calibrate.NuisanceSeparation): that line is not fitted and leaks into
 // the signal. "" when it does not, freq is itself a mains frequency or no
-// mains are fitted.
+// mains are fitted. (A harmonic folded from above the Nyquist frequency:
+// foldClash.)
 func (pl demodPlan) clash(freq, win float64) string {
-	h, m, ok := pl.nearestMains(freq)
-	if !ok || calibrate.MainsNuisance(freq, win, pl.fs, pl.mains, nil) == nil {
+	if calibrate.MainsNuisance(freq, win, pl.fs, pl.mains, nil) == nil {
 		return ""
 	}
-	d := math.Abs(freq - h*m)
 	sep := calibrate.NuisanceSeparation(win)
-	switch {
-	case d < 1e-9*freq:
-		return fmt.Sprintf("the signal's %g Hz is the %s of the %g Hz mains: a mains field there and the signal cannot be told apart, and its current will be read as the signal's; choose another frequency for the tracer if a mains field is near", freq, harmonicName(h), m)
-	case d < sep:
-		return fmt.Sprintf("the signal's %g Hz lies %.3g Hz from the %s of the %g Hz mains (%g Hz), closer than %.3g s windows can fit apart (%.3g Hz): a mains field there is not fitted and leaks into the signal as noise or phantom conductors; use --window %.1f or longer",
-			freq, d, harmonicName(h), m, h*m, win, sep, math.Ceil(10*calibrate.NuisanceSeparation(1)/d)/10)
+	if h, m, ok := pl.nearestMains(freq); ok {
+		d := math.Abs(freq - h*m)
+		switch {
+		case d < 1e-9*freq:
+			return fmt.Sprintf("the signal's %g Hz is the %s of the %g Hz mains: a mains field there and the signal cannot be told apart, and its current will be read as the signal's; choose another frequency for the tracer if a mains field is near", freq, harmonicName(h), m)
+		case d < sep:
+			return fmt.Sprintf("the signal's %g Hz lies %.3g Hz from the %s of the %g Hz mains (%g Hz), closer than %.3g s windows can fit apart (%.3g Hz): a mains field there is not fitted and leaks into the signal as noise or phantom conductors; use --window %.1f or longer",
+				freq, d, harmonicName(h), m, h*m, win, sep, separatingWindow(d))
+		}
 	}
 	return ""
+}
+
+// foldClash warns when a mains odd harmonic above the Nyquist frequency
+// folds (foldedMains) to within the separation of windows of win seconds
+// of the signal at freq, and a line is seen there in the log s
+// (lineNear, beside the windows res): not fitted, it leaks into the
+// signal and pulls its frequency check. At 1160 Hz sampling the 650 Hz
+// 13th harmonic of 50 Hz folds to 510 Hz, 2 Hz from a 512 Hz tracer; it
+// pulled the check to 511.974 Hz with nothing said (found in review).
+// Unlike a harmonic below Nyquist (clash), a folded one is named only
+// when seen: at the common rates many fold near any tone (at 2 kHz the
+// 25th harmonic of 60 Hz folds to 500 Hz), and most loggers filter them
+// out before sampling. "" when none is, or no mains are fitted.
+func (pl demodPlan) foldClash(s *ingest.Samples, res *calibrate.DemodResult, freq, win float64) string {
+	if calibrate.MainsNuisance(freq, win, pl.fs, pl.mains, nil) == nil {
+		return ""
+	}
+	sep := calibrate.NuisanceSeparation(win)
+	h, m, a, ok := pl.foldedMains(freq, sep)
+	if !ok {
+		return ""
+	}
+	share, seen := pl.lineNear(s, res, a, freq)
+	if !seen {
+		return ""
+	}
+	d := math.Abs(freq - a)
+	how := fmt.Sprintf("; log at another rate, or through an anti-alias filter, or use --window %.1f or longer", separatingWindow(d))
+	if d < 1e-9*freq {
+		how = "; log at another rate, or through an anti-alias filter"
+	}
+	return fmt.Sprintf("at the log's %.5g Hz sampling the %s of the %g Hz mains (%g Hz), above the Nyquist frequency, folds to %.4g Hz, %.3g Hz from the signal's %g Hz, closer than %.3g s windows can fit apart (%.3g Hz), and a line is there (%.2g times the signal where it is strongest): it is not fitted, leaks into the signal as noise or phantom conductors, and pulls the frequency check%s",
+		pl.fs, harmonicName(h), m, h*m, a, d, freq, win, sep, share, how)
+}
+
+// separatingWindow is the window, s, rounded up to 0.1 s, in which two
+// lines d Hz apart are fitted apart (calibrate.NuisanceSeparation).
+func separatingWindow(d float64) float64 {
+	return math.Ceil(10*calibrate.NuisanceSeparation(1)/d) / 10
+}
+
+// foldedMainsOrder is the highest order of the mains' odd harmonics that
+// foldedMains folds: the 50th order is as far as the harmonic limits of
+// IEC 61000-3-2 and the measurements of IEC 61000-4-7 reach (from
+// memory).
+const foldedMainsOrder = 49
+
+// foldedMains returns the odd harmonic h of a mains frequency m (of
+// pl.mains), at or above 0.45 of the sample rate (those below are fitted
+// or named as they are) and up to foldedMainsOrder, whose alias a in the
+// log, |h·m - k·fs| folded into [0, fs/2], lies nearest f, when within sep
+// Hz of it; false when none does.
+func (pl demodPlan) foldedMains(f, sep float64) (h, m, a float64, ok bool) {
+	if !(pl.fs > 0) {
+		return 0, 0, 0, false
+	}
+	best := sep
+	for _, mm := range pl.mains {
+		for hh := 1.0; hh <= foldedMainsOrder; hh += 2 {
+			if hh*mm < 0.45*pl.fs {
+				continue
+			}
+			al := math.Mod(hh*mm, pl.fs)
+			if al > pl.fs/2 {
+				al = pl.fs - al
+			}
+			if d := math.Abs(f - al); d < best {
+				best, h, m, a, ok = d, hh, mm, al, true
+			}
+		}
+	}
+	return h, m, a, ok
+}
+
+// pull returns the mains line (a harmonic, or one folded from above the
+// Nyquist frequency) that lies within the separation of windows of win
+// seconds of freq, and is seen in the log s beside the signal at signal
+// Hz (lineNear, near res's strongest window), and so pulls a window's
+// fitted frequency towards it: its frequency in the log, Hz, and its
+// name; ok false when none does (or no mains are fitted).
+func (pl demodPlan) pull(s *ingest.Samples, res *calibrate.DemodResult, freq, signal, win float64) (at float64, name string, ok bool) {
+	if calibrate.MainsNuisance(freq, win, pl.fs, pl.mains, nil) == nil {
+		return 0, "", false
+	}
+	sep := calibrate.NuisanceSeparation(win)
+	if h, m, ok := pl.nearestMains(freq); ok && math.Abs(freq-h*m) < sep {
+		if _, seen := pl.lineNear(s, res, h*m, signal); seen {
+			return h * m, fmt.Sprintf("the %s of the %g Hz mains (%g Hz)", harmonicName(h), m, h*m), true
+		}
+	}
+	if h, m, a, ok := pl.foldedMains(freq, sep); ok {
+		if _, seen := pl.lineNear(s, res, a, signal); seen {
+			return a, fmt.Sprintf("the %s of the %g Hz mains (%g Hz, folded to %.4g Hz at the log's %.5g Hz sampling)", harmonicName(h), m, h*m, a, pl.fs), true
+		}
+	}
+	return 0, "", false
 }
 
 // apart returns the harmonics of h whose frequencies (times freq) lie at
@@ -716,7 +841,7 @@ func (pl demodPlan) unfitted(s *ingest.Samples, freq float64) string {
 				}
 				have = strings.Join(parts, ",")
 			}
-			return fmt.Sprintf("a %g Hz field of %.3g nT peak is in the log, stronger than the %g Hz signal, but --mains %s does not fit it: it leaks into the signal as noise; give --mains %g (or 50,60)", m, a, freq, have, m)
+			return fmt.Sprintf("a %g Hz field of %.3g nT peak is in the log, stronger than the %.7g Hz signal, but --mains %s does not fit it: it leaks into the signal as noise; give --mains %g (or 50,60)", m, a, freq, have, m)
 		}
 	}
 	return ""
@@ -771,7 +896,7 @@ func logRate(s *ingest.Samples) float64 {
 // above), demodulates at the estimate. It returns the result, the window
 // used, the warnings to report (without the log's name) and the offsets of
 // the groups whose own frequency differs (wanderHints).
-func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, float64, []string, map[string]float64, error) {
+func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, float64, []string, freqHints, error) {
 	win := o.window
 	pl := demodPlan{mains: o.mains, fs: logRate(s)}
 	var lengthened string
@@ -786,7 +911,7 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 		if errors.As(err, &ill) && ill.Suggest > 0 {
 			err = fmt.Errorf("%w (--window %g)", err, math.Ceil(ill.Suggest*1000-1e-6)/1000)
 		}
-		return nil, 0, nil, nil, err
+		return nil, 0, nil, freqHints{}, err
 	}
 	if dropped != "" {
 		res.Warnings = append([]string{dropped}, res.Warnings...)
@@ -797,11 +922,14 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 	if w := pl.clash(o.freq, win); w != "" {
 		res.Warnings = append([]string{w}, res.Warnings...)
 	}
+	if w := pl.foldClash(s, res, o.freq, win); w != "" {
+		res.Warnings = append([]string{w}, res.Warnings...)
+	}
 	if w := pl.unfitted(s, o.freq); w != "" {
 		res.Warnings = append([]string{w}, res.Warnings...)
 	}
 	if len(res.Windows) == 0 {
-		return res, win, res.Warnings, nil, nil
+		return res, win, res.Warnings, freqHints{}, nil
 	}
 	// The signal's odd harmonics, locked to the fundamental, would pull
 	// every window's frequency the same way (the frequency column τ sin ωτ
@@ -828,7 +956,7 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 	if err != nil {
 		// The fixed-frequency demodulation went through; a failed check is
 		// worth a warning, not the run.
-		return res, win, append(res.Warnings, fmt.Sprintf("the AC frequency could not be checked (%v): the results assume the field runs at exactly %g Hz", err, o.freq)), nil, nil
+		return res, win, append(res.Warnings, fmt.Sprintf("the AC frequency could not be checked (%v): the results assume the field runs at exactly %g Hz", err, o.freq)), freqHints{}, nil
 	}
 	est, ok := estimateWindowFreq(fit.Windows, win)
 	if !ok {
@@ -836,13 +964,29 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 		if fit.FreqFailed > 0 {
 			w += fmt.Sprintf(" (the frequency fits of %d more windows failed, as where the field runs far from %g Hz: check --freq)", fit.FreqFailed, o.freq)
 		}
-		return res, win, append(res.Warnings, w), nil, nil
+		return res, win, append(res.Warnings, w), freqHints{}, nil
+	}
+	var failedShare string
+	if n := len(fit.Windows) + fit.FreqFailed; fit.FreqFailed > 0 && freqFailedShare*float64(n) < float64(fit.FreqFailed) {
+		// A few failed fits are the noisiest windows (a traverse's weak
+		// ends); many say the check rests on what is left.
+		failedShare = fmt.Sprintf("the frequency fits of %d of %d windows failed (windows dominated by noise, or fits drawn onto a mains line, or a field far from %g Hz) and were left out of the frequency check, which rests on the rest", fit.FreqFailed, n, o.freq)
+		res.Warnings = append(res.Warnings, failedShare)
 	}
 	off := est.freq - o.freq
 	span := longestGroupSpan(res.Windows, win)
 	turn := 360 * math.Abs(off) * span
 	if math.Abs(off) <= freqCheckSigmas*est.sigma || turn <= freqCheckDegrees {
-		return res, win, res.Warnings, wanderHints(fit.Windows, o.freq, win), nil
+		hints := freqHints{groups: wanderHints(fit.Windows, o.freq, win)}
+		// Not told from --freq, but perhaps not known well enough either:
+		// the offset plus its uncertainty may still turn the phase across
+		// a group by more than one phase per line can follow.
+		if allowed := 360 * (math.Abs(off) + freqLooseSigmas*est.sigma) * span; allowed > freqLooseDegrees {
+			hints.loose, hints.off = true, off
+			hints.bound = math.Abs(off) + freqLooseSigmas*est.sigma
+			return res, win, append(res.Warnings, looseWarning(est, o.freq, span, allowed)), hints, nil
+		}
+		return res, win, res.Warnings, hints, nil
 	}
 	dec := freqDecimals(est.sigma)
 	if !est.trusted && math.Abs(off) <= freqCheckUntrustedHz {
@@ -855,12 +999,12 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 		// "as if ... 49.9988 Hz"; found in review), and the warning's sigma
 		// counts it.
 		if math.Abs(off) <= freqWalkSpreads*est.spread {
-			return res, win, res.Warnings, wanderHints(fit.Windows, o.freq, win), nil
+			return res, win, res.Warnings, freqHints{groups: wanderHints(fit.Windows, o.freq, win)}, nil
 		}
 		sg := math.Hypot(est.sigma, est.spread)
 		d := freqDecimals(sg)
 		return res, win, append(res.Warnings, fmt.Sprintf(oneWayLead+" the AC field ran at %.*f ± %.*f Hz, not the %g Hz given (a turn of %.0f° across the longest group, %.1f s): the grid slightly off its frequency, or the phase changing along traverses all walked the same way where conductors of different phase overlap, which a log walked one way cannot tell apart; the results assume the %g Hz given (walk back and forth, or log a while standing still, to tell)",
-			d, est.freq, d, sg, o.freq, turn, span, o.freq)), wanderHints(fit.Windows, o.freq, win), nil
+			d, est.freq, d, sg, o.freq, turn, span, o.freq)), freqHints{groups: wanderHints(fit.Windows, o.freq, win)}, nil
 	}
 	// Beyond about a quarter of 1/window from --freq the windows' fits no
 	// longer converge reliably; an estimate out there is not to be trusted.
@@ -872,7 +1016,37 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 				hint += fmt.Sprintf(", or a window too short to tell them apart (try --window %.1f or longer)", math.Ceil(10*calibrate.NuisanceSeparation(1)/d)/10)
 			}
 		}
-		return nil, 0, nil, nil, fmt.Errorf("%s: the AC field does not run at the %g Hz given: the windows' fitted frequencies average %.3f Hz, too far off for a %.3g s window to follow; give the field's frequency with --freq (about %.2f Hz)%s", s.Source, o.freq, est.freq, win, est.freq, hint)
+		return nil, 0, nil, freqHints{}, fmt.Errorf("%s: the AC field does not run at the %g Hz given: the windows' fitted frequencies average %.3f Hz, too far off for a %.3g s window to follow; give the field's frequency with --freq (about %.2f Hz)%s", s.Source, o.freq, est.freq, win, est.freq, hint)
+	}
+	// A mains line within the windows' separation of --freq (or of the
+	// estimate) is not fitted, and pulls every window's frequency the same
+	// way, which the estimate's sigma (from the windows' scatter) does not
+	// see: a 645 Hz tone beside a 650 Hz 13th harmonic read 645.185 ±
+	// 0.003 Hz, and demodulated there every traverse was nonsense, with
+	// the warning naming the harmonic dropped (found in review). Such an
+	// estimate is not acted on: the run stays at --freq and says why, and
+	// which window fits the two apart. A signal given on a mains line
+	// itself (--freq 150 for the 3rd harmonic) is that line, and follows
+	// the grid off its nominal as before.
+	for _, f := range []float64{o.freq, est.freq} {
+		if h, m, ok := pl.nearestMains(o.freq); ok && math.Abs(o.freq-h*m) < 1e-9*o.freq {
+			break
+		}
+		at, name, ok := pl.pull(s, res, f, o.freq, win)
+		if !ok {
+			continue
+		}
+		d := math.Min(math.Abs(o.freq-at), math.Abs(est.freq-at))
+		return res, win, append(res.Warnings, fmt.Sprintf("the windows' fitted frequencies put the AC field at %.*f ± %.*f Hz, not the %g Hz given, but %s lies too near for %.3g s windows to fit it apart, and pulls every window's frequency towards it: the estimate is not trusted, and the results assume the %g Hz given; use --window %.1f or longer to fit the two apart (the frequency is then checked without the pull)",
+			dec, est.freq, dec, est.sigma, o.freq, name, win, o.freq, separatingWindow(d))), freqHints{}, nil
+	}
+	// So does a second line that is not the mains: another tone, a
+	// neighbouring circuit's (a 5 A line at 516 Hz 3 m from a 512 Hz
+	// tracer put the estimate at 512.239 ± 0.003 Hz; found in review).
+	if at, share, ok := pl.neighbourLine(s, res, o.freq, est.freq, win); ok {
+		d := math.Min(math.Abs(o.freq-at), math.Abs(est.freq-at))
+		return res, win, append(res.Warnings, fmt.Sprintf("the windows' fitted frequencies put the AC field at %.*f ± %.*f Hz, not the %g Hz given, but the log holds a second line at about %.1f Hz (%.2g times the signal where that is strongest), too near for %.3g s windows to fit apart, which pulls every window's frequency towards it: the estimate is not trusted, and the results assume the %g Hz given; use --window %.1f or longer to fit the two apart (the frequency is then checked without the pull), and check that the line at %.1f Hz is not the one to locate",
+			dec, est.freq, dec, est.sigma, o.freq, at, share, win, o.freq, separatingWindow(d), at)), freqHints{}, nil
 	}
 	// A window of whole cycles of --freq becomes the nearest whole number
 	// of cycles of the estimate: the windows' phasors are the path averages
@@ -886,7 +1060,7 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 	harm2, dropped2 := pl.signalHarmonics(est.freq, win2)
 	again, err := pl.demodulate(s, est.freq, win2, harm2)
 	if err != nil {
-		return nil, 0, nil, nil, err
+		return nil, 0, nil, freqHints{}, err
 	}
 	if dropped2 != "" {
 		again.Warnings = append([]string{dropped2}, again.Warnings...)
@@ -894,9 +1068,61 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 	if lengthened != "" {
 		again.Warnings = append([]string{lengthened}, again.Warnings...)
 	}
+	// The warnings about the mains beside the signal hold at the estimate
+	// as at --freq, and are computed afresh there: before, they were
+	// dropped with the first demodulation, a strong 50 Hz field left
+	// unfitted by --mains 60 among them (found in review).
+	if w := pl.clash(est.freq, win2); w != "" {
+		again.Warnings = append([]string{w}, again.Warnings...)
+	}
+	if w := pl.foldClash(s, again, est.freq, win2); w != "" {
+		again.Warnings = append([]string{w}, again.Warnings...)
+	}
+	if w := pl.unfitted(s, est.freq); w != "" {
+		again.Warnings = append([]string{w}, again.Warnings...)
+	}
+	again.Warnings = appendNonEmpty(again.Warnings, failedShare)
 	warn := fmt.Sprintf("AC frequency estimated at %.*f ± %.*f Hz from %d windows, not the %g Hz given (at %g Hz the phase would turn %.0f° across the longest group, %.1f s, and the currents would read low); demodulated at %.*f Hz in %.4g s windows; the estimate's own uncertainty turns the phase by 360·σ·t, so phases compare between the conductors of a group, not between groups",
 		dec, est.freq, dec, est.sigma, est.windows, o.freq, o.freq, turn, span, dec, est.freq, win2)
-	return again, win2, append([]string{warn}, again.Warnings...), wanderHints(fit.Windows, est.freq, win2), nil
+	return again, win2, append([]string{warn}, again.Warnings...), freqHints{groups: wanderHints(fit.Windows, est.freq, win2)}, nil
+}
+
+// freqHints is what demodulateAC tells the groups' fits about the
+// frequency: where each group's phase-ramp search starts (fitRamp).
+type freqHints struct {
+	// groups holds, for each group whose own frequency differs from the one
+	// used, that frequency's offset, Hz (wanderHints).
+	groups map[string]float64
+	// loose is set when the frequency used is not known well enough to hold
+	// one phase across a group (freqLooseDegrees): every group then has its
+	// phase ramp searched for, as one demodulated at an estimate, starting
+	// from off (the log's estimate less the frequency used, Hz) unless
+	// groups gives its own, and out to bound Hz.
+	loose      bool
+	off, bound float64
+}
+
+// of returns the offset where group g's ramp search starts, Hz (0 for
+// none).
+func (h freqHints) of(g string) float64 {
+	if f, ok := h.groups[g]; ok {
+		return f
+	}
+	if h.loose {
+		return h.off
+	}
+	return 0
+}
+
+// looseWarning says that the frequency the windows give, est, is too
+// uncertain for one phase across a group of span seconds at freq Hz: its
+// offset plus freqLooseSigmas of its sigma allows a turn of allowed
+// degrees. It names what to do.
+func looseWarning(est freqEstimate, freq, span, allowed float64) string {
+	dec := freqDecimals(est.sigma)
+	need := freqLooseDegrees / 360.0 / span
+	return fmt.Sprintf("the AC frequency is not known well enough to hold the phase across a group: the windows put it at %.*f ± %.*f Hz, which does not tell it from the %g Hz given, yet allows the phase to turn up to %.0f° across the longest group (%.1f s), which one current and phase per line cannot follow (the currents then read low, or as phantom go-and-return pairs); each group was searched for a phase ramp (its notes give any found; phases then compare between the conductors of a group, not between groups), and the results assume %g Hz elsewhere. Give the tone's frequency with --freq to within %.2g Hz if the transmitter's is known that well, or split the traverses into shorter groups, or raise the signal (a stronger tone, or a longer log) so that the windows fix the frequency",
+		dec, est.freq, dec, est.sigma, freq, allowed, span, freq, need)
 }
 
 // oneWayLead starts the warning that a log walked one way seems off its
@@ -959,4 +1185,223 @@ func groupWander(ws []calibrate.Window, freq, window float64) map[string]float64
 		bad[k] = est.freq
 	}
 	return bad
+}
+
+// lineShare is the least amplitude, as a share of the signal's, at which
+// a lineProbe takes a line beside the signal as present; lineSNR the
+// least multiple of its own sigma. Set on the review's logs: a line in
+// the log at 0.10-0.27 of the signal and 140-630 of its sigmas, none at
+// 0.003 and 6.
+const (
+	lineShare = 0.02
+	lineSNR   = 10
+)
+
+// lineProbe looks for lines beside the signal in the readings about the
+// signal's strongest window. A mains line's frequencies are fixed by the
+// mains and the sampling, whether or not a field there is in the log:
+// the warnings that name a harmonic below the Nyquist frequency do so in
+// any case, while acting on a line (holding the frequency at --freq), or
+// naming one folded from above the Nyquist frequency, waits for it to be
+// seen.
+type lineProbe struct {
+	x      *mat.Dense // the base columns at the rows taken
+	qr     mat.QR
+	tau    []float64    // the rows' times from the centre, s
+	resid  [3][]float64 // each axis's residual after the base fit
+	sig    float64      // the signal's amplitude over the axes
+	others []float64    // the mains lines in the base, Hz
+}
+
+// newLineProbe fits the readings of s within span/2 s of the centre of
+// res's window of the largest field (in its group) per axis with the
+// base: a constant and a slope, the signal's sine and cosine at signal Hz
+// with their linear and quadratic change, and the mains lines fitted
+// beside it (calibrate.MainsNuisance in 0.1 s windows) with their linear
+// change. Nil when there is too little to fit.
+func (pl demodPlan) newLineProbe(s *ingest.Samples, res *calibrate.DemodResult, signal, span float64) *lineProbe {
+	if res == nil || len(res.Windows) == 0 || s.Len() < 64 {
+		return nil
+	}
+	best, bw := -1.0, res.Windows[0]
+	for _, w := range res.Windows {
+		if e := abs(w.B[0])*abs(w.B[0]) + abs(w.B[1])*abs(w.B[1]) + abs(w.B[2])*abs(w.B[2]); e > best {
+			best, bw = e, w
+		}
+	}
+	var rows []int
+	for i, t := range s.Time {
+		if math.Abs(t-bw.Time) <= span/2 && (s.Group == nil || s.Group[i] == bw.Group) {
+			rows = append(rows, i)
+		}
+	}
+	lp := &lineProbe{others: calibrate.MainsNuisance(signal, mainsWindowStep, pl.fs, pl.mains, nil)}
+	p := 8 + 4*len(lp.others)
+	if len(rows) < 4*(p+2) {
+		return nil
+	}
+	lp.x = mat.NewDense(len(rows), p, nil)
+	lp.tau = make([]float64, len(rows))
+	row := make([]float64, p)
+	for r, i := range rows {
+		tau := s.Time[i] - bw.Time
+		lp.tau[r] = tau
+		cs, ss := math.Cos(2*math.Pi*signal*tau), math.Sin(2*math.Pi*signal*tau)
+		u := 2 * tau / span
+		q := u*u - 1.0/3
+		copy(row, []float64{1, u, cs, ss, u * cs, u * ss, q * cs, q * ss})
+		for k, f := range lp.others {
+			c, sn := math.Cos(2*math.Pi*f*tau), math.Sin(2*math.Pi*f*tau)
+			row[8+4*k], row[9+4*k], row[10+4*k], row[11+4*k] = c, sn, u*c, u*sn
+		}
+		lp.x.SetRow(r, row)
+	}
+	lp.qr.Factorize(lp.x)
+	for k, col := range [][]float64{s.Bx, s.By, s.Bz} {
+		y := mat.NewVecDense(len(rows), nil)
+		for r, i := range rows {
+			y.SetVec(r, col[i])
+		}
+		var b, fit mat.VecDense
+		if err := lp.qr.SolveVecTo(&b, false, y); err != nil {
+			return nil
+		}
+		fit.MulVec(lp.x, &b)
+		lp.resid[k] = make([]float64, len(rows))
+		for r := range rows {
+			lp.resid[k][r] = y.AtVec(r) - fit.AtVec(r)
+		}
+		lp.sig = math.Hypot(lp.sig, math.Hypot(b.AtVec(2), b.AtVec(3)))
+	}
+	if !(lp.sig > 0) {
+		return nil
+	}
+	return lp
+}
+
+// test reports whether a line at at Hz (as the log shows it: a folded
+// line at its alias) is in the readings: its sine and cosine, made
+// orthogonal to the base, fitted to each axis's residual, must reach
+// lineShare of the signal's amplitude and lineSNR of their own sigma (a
+// sine's coefficient has about 2σ²/n of variance, IEEE Std 1057). share
+// is the line's amplitude over the signal's.
+func (lp *lineProbe) test(at float64) (share float64, ok bool) {
+	for _, f := range lp.others {
+		if math.Abs(f-at) < 1 {
+			return 0, false
+		}
+	}
+	n := len(lp.tau)
+	z := mat.NewDense(n, 2, nil)
+	for r, tau := range lp.tau {
+		z.Set(r, 0, math.Cos(2*math.Pi*at*tau))
+		z.Set(r, 1, math.Sin(2*math.Pi*at*tau))
+	}
+	var b, fit mat.Dense
+	if err := lp.qr.SolveTo(&b, false, z); err != nil {
+		return 0, false
+	}
+	fit.Mul(lp.x, &b)
+	z.Sub(z, &fit)
+	var g00, g01, g11 float64
+	for r := 0; r < n; r++ {
+		c, sn := z.At(r, 0), z.At(r, 1)
+		g00 += c * c
+		g01 += c * sn
+		g11 += sn * sn
+	}
+	det := g00*g11 - g01*g01
+	if !(det > 1e-9*g00*g11) {
+		return 0, false
+	}
+	_, p := lp.x.Dims()
+	var line, noise float64
+	for k := range lp.resid {
+		var zc, zs, rr float64
+		for r, v := range lp.resid[k] {
+			zc += z.At(r, 0) * v
+			zs += z.At(r, 1) * v
+			rr += v * v
+		}
+		a := (g11*zc - g01*zs) / det
+		bb := (g00*zs - g01*zc) / det
+		rss := math.Max(0, rr-(a*zc+bb*zs))
+		line = math.Hypot(line, math.Hypot(a, bb))
+		noise = math.Hypot(noise, math.Sqrt(2*rss/float64(n-p-2)/float64(n)))
+	}
+	share = line / lp.sig
+	return share, line >= lineShare*lp.sig && line >= lineSNR*noise
+}
+
+// lineNear reports whether the log holds a line at at Hz beside the
+// signal at freq Hz (lineProbe.test), looked for over max(1 s,
+// 2.5/|at - freq|), at most 8 s: two and a half beats of the two.
+func (pl demodPlan) lineNear(s *ingest.Samples, res *calibrate.DemodResult, at, freq float64) (share float64, ok bool) {
+	span := math.Min(8, math.Max(1, 2.5/math.Max(math.Abs(at-freq), 1e-9)))
+	lp := pl.newLineProbe(s, res, freq, span)
+	if lp == nil {
+		return 0, false
+	}
+	return lp.test(at)
+}
+
+// neighbourStep is the step, Hz, of the frequencies neighbourLine tries.
+const neighbourStep = 0.5
+
+// neighbourLine looks in the log s for a line that is not the mains
+// within the separation of windows of win seconds of freq or est (the
+// frequency given and the one the windows put the signal at), at least
+// 2 Hz from both (nearer, the signal's own change along the walk spreads
+// it): a lineProbe over 1.25 s (2.5 beats of a line 2 Hz off) tests
+// every neighbourStep, the signal taken at est, and a
+// line is one that passes lineNear's test and stands above the
+// frequencies either side. The mains lines (harmonics, folded ones, and
+// those fitted beside the signal) are left to pull. It returns the
+// strongest such line's frequency and its share of the signal; false
+// when there is none, or freq is itself a mains frequency.
+func (pl demodPlan) neighbourLine(s *ingest.Samples, res *calibrate.DemodResult, freq, est, win float64) (at, share float64, ok bool) {
+	nuis := calibrate.MainsNuisance(freq, win, pl.fs, pl.mains, nil)
+	if nuis == nil {
+		return 0, 0, false
+	}
+	sep := calibrate.NuisanceSeparation(win)
+	lo, hi := math.Min(freq, est)-sep, math.Max(freq, est)+sep
+	mainsNear := func(f float64) bool {
+		for _, n := range nuis {
+			if math.Abs(f-n) < 1 {
+				return true
+			}
+		}
+		if h, m, ok := pl.nearestMains(f); ok && math.Abs(f-h*m) < 1 {
+			return true
+		}
+		_, _, _, ok := pl.foldedMains(f, 1)
+		return ok
+	}
+	// One probe for every step, over 2.5 beats of a line 2 Hz off.
+	lp := pl.newLineProbe(s, res, est, 1.25)
+	if lp == nil {
+		return 0, 0, false
+	}
+	var fs, shares []float64
+	var seen []bool
+	for f := lo + neighbourStep; f < hi; f += neighbourStep {
+		if f <= 0 || f >= 0.45*pl.fs {
+			continue
+		}
+		sh, ok := 0.0, false
+		if math.Abs(f-freq) >= 2 && math.Abs(f-est) >= 2 && !mainsNear(f) {
+			sh, ok = lp.test(f)
+		}
+		fs, shares, seen = append(fs, f), append(shares, sh), append(seen, ok)
+	}
+	for i := range fs {
+		if !seen[i] || (i > 0 && shares[i-1] > shares[i]) || (i+1 < len(fs) && shares[i+1] > shares[i]) {
+			continue
+		}
+		if shares[i] > share {
+			at, share, ok = fs[i], shares[i], true
+		}
+	}
+	return at, share, ok
 }

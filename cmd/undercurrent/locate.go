@@ -495,6 +495,12 @@ type group struct {
 	// estimated from the log, not the one given: off by about the
 	// estimate's sigma, so the ramp is always searched for (fitRamp).
 	estimated bool
+	// loose is set (AC) when the frequency used is not known well enough
+	// to hold one phase across a group (freqHints.loose): the ramp is then
+	// searched for as in a group demodulated at an estimate, and as far
+	// from 0 as rampBound, Hz, the frequency's uncertainty, reaches.
+	loose     bool
+	rampBound float64
 }
 
 // problem is the group's readings as an inverse problem.
@@ -1610,8 +1616,9 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 				g.wsigma = append(g.wsigma, v)
 			}
 		}
-		g.hint = hints[w.Group]
+		g.hint = hints.of(w.Group)
 		g.estimated = res.Freq != o.freq
+		g.loose, g.rampBound = hints.loose, hints.bound
 		g.travel = append(g.travel, 2*math.Sqrt(w.Travel[0]*w.Travel[0]+w.Travel[1]*w.Travel[1]+w.Travel[2]*w.Travel[2]))
 	}
 	return nil

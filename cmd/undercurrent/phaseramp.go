@@ -187,11 +187,12 @@ func fitRamp(g *group, set *inverse.Settings, noise float64) {
 	var keepHz, keepSigma, keepGain float64
 	// The search with one line fewer runs only where the group was
 	// demodulated at a frequency estimated from the log (the phase then
-	// turns by the estimate's error): run for every AC group it made the
+	// turns by the estimate's error), or at one not known well enough for
+	// one phase per group (group.loose): run for every AC group it made the
 	// demo four times slower and kept ramps of 3e-5 Hz at exactly 50 Hz
 	// that moved a 15 A cable's current 3-6 sigma (found in review).
 	least := max(count, 1)
-	if g.estimated {
+	if g.estimated || g.loose {
 		least = max(count-1, 1)
 	}
 	for c := max(count, 1); c >= least; c-- {
@@ -238,7 +239,7 @@ func rampSearch(g *group, r0 *inverse.Result, held *inverse.Settings, fitAt func
 		}
 	}
 	a, sa, ok := rampStep(rc, g.times, mid)
-	if !ok || (centre == 0 && !g.estimated && math.Abs(a) < rampScreen*sa) {
+	if !ok || (centre == 0 && !g.estimated && !g.loose && math.Abs(a) < rampScreen*sa) {
 		return 0, 0, false
 	}
 	// The step: the linearised estimate, at least three of its sigmas (so
@@ -246,7 +247,9 @@ func rampSearch(g *group, r0 *inverse.Result, held *inverse.Settings, fitAt func
 	// most the bound. The search may go as far as the frequency check's
 	// one-way limit (freqCheckUntrustedHz) beyond which it acts itself, or
 	// rampMaxDegrees across the group if that is further.
-	bound := math.Max(rampMaxDegrees/360.0/span, 2*freqCheckUntrustedHz) // Hz
+	// Where the frequency is not known well enough for one phase per
+	// group, as far as its uncertainty reaches (group.rampBound).
+	bound := math.Max(math.Max(rampMaxDegrees/360.0/span, 2*freqCheckUntrustedHz), g.rampBound) // Hz
 	d := math.Copysign(math.Min(bound, math.Max(math.Abs(a), 3*sa)/(2*math.Pi)), a)
 	// Parabolas through (centre, sc), (centre + d, s1), (centre + 2 d, s2),
 	// sc + b u + c u² at centre + d u, moving the centre on while the
