@@ -179,6 +179,20 @@ func InputFrame(r Reader) (f Frame, stated, ok bool) {
 	return FrameENU, false, false
 }
 
+// TimeBasis says how a reader of this package took the input's times,
+// complete once Next has returned false: naive when they were written
+// without a UTC offset (text, or Arrow timestamps without a time zone)
+// and read as UTC, as warned (they may be a zone's local times); saidUTC
+// when the time column said they are UTC (its unit). Both are false for
+// times that carry their offset, seconds since 1970, an IAGA-2002 file's
+// times (UTC by the format) and readers of other packages.
+func TimeBasis(r Reader) (naive, saidUTC bool) {
+	if p := planOf(r); p != nil {
+		return p.naiveWarned, p.timeUTC
+	}
+	return false, false
+}
+
 // ColumnMapping describes where one canonical column came from.
 type ColumnMapping struct {
 	Column string  `json:"column"` // canonical name
