@@ -1373,6 +1373,26 @@ func zoneShiftHint(base, rover *ingest.Samples) string {
 	return ""
 }
 
+// baseNoVerticalError refuses an IAGA-2002 base record that reports no
+// vertical component (its third element NUL): the base correction takes
+// the observatory's variation off all three of the survey's axes. A
+// correction of the horizontal axes alone is not made: the vertical's
+// variation (of the same order as the horizontal's at mid latitudes, the
+// daily variation's Z tens of nT: from memory) would stay in bz, which
+// the fits read as the currents' field along with the corrected bx and
+// by, under a report saying the field was corrected.
+func baseNoVerticalError(path, reported, elements string, vec []string) error {
+	hdr := fmt.Sprintf("its column line's elements %s", elements)
+	if reported != "" {
+		hdr = fmt.Sprintf("its header's Reported %s", reported)
+	}
+	held := "no vector element"
+	if len(vec) > 0 {
+		held = strings.Join(vec, " and ") + " only"
+	}
+	return fmt.Errorf("base record %s reports no vertical component (%s: %s, no Z): the base correction takes the observatory's variation off all three axes of the survey's field and has nothing to take off bz; correcting bx and by alone would leave the vertical's variation in bz, which the fits read as the currents' field, so it is not done. Give the observatory's record for the same time that reports Z (its variation or adjusted data in XYZ, HDZ or HEZ), or locate without --base (no time variation is taken off)", path, hdr, held)
+}
+
 // nonEmpty returns s as a one-element list, or nil when it is empty.
 func nonEmpty(s string) []string {
 	if s == "" {
@@ -1401,6 +1421,14 @@ func checkBaseLog(o *locateOptions, base *ingest.Samples) error {
 			what = fmt.Sprintf("an IAGA-2002 record of elements %s, the instrument's own axes", base.Meta["elements"])
 		}
 		return fmt.Errorf("base record %s is %s, not east-north-up, and holds nothing to turn it with: a base log must give the field in geographic (or geomagnetic) axes; use the observatory's XYZ, HDZ or HEZ variation data for the same days instead", o.base, what)
+	}
+	if el := base.Meta["elements"]; el != "" {
+		if vec := strings.Fields(ingest.IAGAVectorElements(el)); len(vec) < 3 {
+			// A file of H and E alone (Reported HENULNUL): refused
+			// before as "fewer than two valid values in column bz", a
+			// column the file does not have (found in review).
+			return baseNoVerticalError(o.base, base.Meta["reported"], el, vec)
+		}
 	}
 	for _, c := range []struct {
 		name string
