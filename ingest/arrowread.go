@@ -1,6 +1,7 @@
 package ingest
 
 import (
+	"bytes"
 	"context"
 	"errors"
 	"fmt"
@@ -8,6 +9,8 @@ import (
 	"math"
 	"os"
 	"strconv"
+	"strings"
+	"time"
 
 	"github.com/apache/arrow-go/v18/arrow"
 	"github.com/apache/arrow-go/v18/arrow/array"
@@ -31,8 +34,13 @@ type arrowReader struct {
 	batch  int
 	start  int64 // rows in the batches before the current one
 	last   float64
-	rb     rawBatch
-	done   bool
+	// lastText is the last time as written, at lastAt ("batch 0 row
+	// 4"), lastNaive when without a UTC offset (for the message of a
+	// step back from it).
+	lastText, lastAt string
+	lastNaive        bool
+	rb               rawBatch
+	done             bool
 }
 
 func (r *arrowReader) plan() *plan                    { return r.pl }
@@ -319,12 +327,15 @@ func (r *arrowReader) Next() bool {
 			if i, prev, g := r.pl.groupBackwards(out); i >= 0 {
 				t := out.Column(0).(*array.Float64).Value(i)
 				out.Release()
-				e := rowErr(r.name, r.batch-1, i, r.pl.header[r.pl.src[cTime]], formatSeconds(t), "%s", groupBackwardsMsg(t, prev, g))
+				e := rowErr(r.name, r.batch-1, i, r.pl.header[r.pl.src[cTime]], formatSeconds(t), "%s", groupBackwardsMsg(t, prev, g, r.pl.naiveWarned))
 				e.FileRow = start + int64(i)
 				r.err = e
 				r.Release()
 				return false
 			}
+		}
+		if !r.pl.orderAll && !r.pl.noTime {
+			r.pl.noteClockChange(out.Column(0).(*array.Float64).Float64Values(), r.name)
 		}
 		r.cur = out
 		return true
@@ -378,7 +389,7 @@ func (r *arrowReader) convert(rec arrow.RecordBatch) (arrow.RecordBatch, error) 
 				}
 			}
 		}
-		if err := r.checkTime(cols[0].(*array.Float64).Float64Values(), nil); err != nil {
+		if err := r.checkTime(cols[0].(*array.Float64).Float64Values(), rec.Column(pl.src[cTime])); err != nil {
 			return nil, err
 		}
 		return array.NewRecordBatch(pl.schema, cols, int64(n)), nil
@@ -402,7 +413,11 @@ func (r *arrowReader) convert(rec arrow.RecordBatch) (arrow.RecordBatch, error) 
 		}
 	}
 	pl.transform(rb)
-	if err := r.checkTime(rb.f[cTime], nil); err != nil {
+	var raw arrow.Array
+	if pl.src[cTime] >= 0 {
+		raw = rec.Column(pl.src[cTime])
+	}
+	if err := r.checkTime(rb.f[cTime], raw); err != nil {
 		return nil, err
 	}
 	return pl.record(r.cfg.mem, rb), nil
@@ -431,19 +446,62 @@ func (r *arrowReader) fastPath(rec arrow.RecordBatch) bool {
 	return true
 }
 
-func (r *arrowReader) checkTime(t []float64, _ []int) error {
-	if r.pl.orderAll {
-		if i := firstBackwards(t, r.last); i >= 0 {
-			prev := r.last
-			if i > 0 {
-				prev = lastTime(t[:i], r.last)
-			}
-			e := rowErr(r.name, r.batch, i, r.pl.header[r.pl.src[cTime]], formatSeconds(t[i]), "time goes backwards: %s after %s", formatSeconds(t[i]), formatSeconds(prev))
-			return e
-		}
+// checkTime refuses a step back in time in the batch's times t (raw: its
+// time column as read, for the times as written) when the log is read in
+// time order.
+func (r *arrowReader) checkTime(t []float64, raw arrow.Array) error {
+	if !r.pl.orderAll {
+		return nil
 	}
-	r.last = lastTime(t, r.last)
+	at := func(i int) string { return strings.TrimPrefix(batchRow(r.batch, i, r.start+int64(i)), ": ") }
+	if i := firstBackwards(t, r.last); i >= 0 {
+		prev, prevText, prevAt, prevNaive := r.last, r.lastText, r.lastAt, r.lastNaive
+		if k := lastIndex(t[:i]); k >= 0 {
+			prev, prevAt = t[k], at(k)
+			prevText, prevNaive = r.timeText(raw, k)
+		}
+		text, naive := r.timeText(raw, i)
+		shown := text
+		if shown == "" {
+			shown = formatSeconds(t[i])
+		}
+		return rowErr(r.name, r.batch, i, r.pl.header[r.pl.src[cTime]], shown, "%s", backwardsMsg(t[i], prev, text, prevText, prevAt, naive && prevNaive))
+	}
+	if k := lastIndex(t); k >= 0 {
+		r.last, r.lastAt = t[k], at(k)
+		r.lastText, r.lastNaive = r.timeText(raw, k)
+	}
 	return nil
+}
+
+// timeText returns row i of the time column raw as written (a text as
+// it is, a number in the file's unit, a timestamp in RFC 3339) and
+// whether it gives no UTC offset (a text or a timestamp type without one,
+// in a log whose time unit does not say UTC); "" when there is none.
+func (r *arrowReader) timeText(raw arrow.Array, i int) (string, bool) {
+	if raw == nil || i < 0 || i >= raw.Len() {
+		return "", false
+	}
+	if d, ok := raw.(*array.Dictionary); ok {
+		raw, i = d.Dictionary(), d.GetValueIndex(i)
+	}
+	v, text, k := cell(raw, i)
+	switch k {
+	case cellText:
+		text = string(bytes.Trim(trimField([]byte(text)), " \t"))
+		return text, r.pl.textNaive(text)
+	case cellNumber:
+		return strconv.FormatFloat(v, 'f', -1, 64), false
+	case cellTimestamp:
+		tt, _ := raw.DataType().(*arrow.TimestampType)
+		ns := math.Round((v - math.Floor(v)) * 1e9)
+		tm := time.Unix(int64(math.Floor(v)), int64(ns)).UTC()
+		if tt != nil && tt.TimeZone == "" {
+			return tm.Format("2006-01-02T15:04:05.999999999"), !r.pl.timeUTC
+		}
+		return tm.Format(time.RFC3339Nano), false
+	}
+	return "", false
 }
 
 // convertible reports whether a column of type dt can feed canonical column c.

@@ -63,6 +63,10 @@ type csvReader struct {
 	cur     arrow.RecordBatch
 	err     error
 	last    float64
+	// lastText is the last time as written, on line lastLine (for the
+	// message of a step back from it).
+	lastText string
+	lastLine int
 }
 
 const (
@@ -89,9 +93,12 @@ type csvResult struct {
 	err       error
 	firstTime float64 // first non-NaN time, NaN if none
 	firstLine int
+	firstText string // the first time as written
 	lastTime  float64
-	lines     []int // line of each row, for TimeOrderedPerGroup
-	naiveLine int   // line of the first timestamp without a UTC offset, 0 if none
+	lastLine  int    // line of the last non-NaN time
+	lastText  string // the last time as written
+	lines     []int  // line of each row, for TimeOrderedPerGroup
+	naiveLine int    // line of the first timestamp without a UTC offset, 0 if none
 	naiveText string
 	rows      int // rows in rec
 	noGroup   int // rows with an empty group cell
@@ -1111,9 +1118,10 @@ func (r *csvReader) parseJob(j csvJob, rb *rawBatch) csvResult {
 			// first in the file, whatever the chunking: report that.
 			t := rb.f[cTime]
 			if i := firstBackwards(t, math.NaN()); i > 0 {
-				res.err = backwardsErr(r.name, rb.line[i], pl.header[pl.src[cTime]], t[i], lastTime(t[:i], math.NaN()))
+				res.err = r.chunkBackwards(j, rb, i)
 			}
 			res.firstTime, res.firstLine = firstTime(t, rb.line)
+			res.firstText = r.timeTextAt(j, res.firstLine)
 		}
 		return res
 	}
@@ -1121,7 +1129,7 @@ func (r *csvReader) parseJob(j csvJob, rb *rawBatch) csvResult {
 	t := rb.f[cTime]
 	if r.pl.orderAll {
 		if i := firstBackwards(t, math.NaN()); i > 0 {
-			return csvResult{err: backwardsErr(r.name, rb.line[i], pl.header[pl.src[cTime]], t[i], lastTime(t[:i], math.NaN()))}
+			return csvResult{err: r.chunkBackwards(j, rb, i)}
 		}
 	}
 	res := csvResult{rec: pl.record(r.cfg.mem, rb), lastTime: lastTime(t, math.NaN()), naiveLine: rb.naiveLine, naiveText: rb.naiveText, nulLine: rb.nulLine}
@@ -1140,7 +1148,81 @@ func (r *csvReader) parseJob(j csvJob, rb *rawBatch) csvResult {
 		}
 	}
 	res.firstTime, res.firstLine = firstTime(t, rb.line)
+	if pl.orderAll {
+		// The chunk's first and last times as written, for a step back
+		// from one chunk to the next.
+		res.firstText = r.timeTextAt(j, res.firstLine)
+		if k := lastIndex(t); k >= 0 {
+			res.lastLine = rb.line[k]
+			res.lastText = r.timeTextAt(j, res.lastLine)
+		}
+	}
 	return res
+}
+
+// lastIndex is the index of the last time that is not NaN, -1 if none.
+func lastIndex(t []float64) int {
+	for i := len(t) - 1; i >= 0; i-- {
+		if t[i] == t[i] {
+			return i
+		}
+	}
+	return -1
+}
+
+// chunkBackwards is the error of a step back in time at row i of the
+// chunk j (parsed into rb), from the last time before it in the chunk.
+func (r *csvReader) chunkBackwards(j csvJob, rb *rawBatch, i int) *Error {
+	t := rb.f[cTime]
+	k := lastIndex(t[:i])
+	return r.backwardsErr(rb.line[i], t[i], r.timeTextAt(j, rb.line[i]), t[k], r.timeTextAt(j, rb.line[k]), rb.line[k])
+}
+
+// timeTextAt returns the time field as written on line line of the chunk
+// j, "" when it cannot be found there (a record run on over quoted line
+// breaks).
+func (r *csvReader) timeTextAt(j csvJob, line int) string {
+	data, k := j.data, line-j.line
+	if k < 0 || k > j.lines {
+		return ""
+	}
+	if k > j.lines/2 {
+		// From the end: line k starts after the k-th of the chunk's
+		// j.lines line ends.
+		end := len(data)
+		for n := j.lines; n >= k && end > 0; n-- {
+			e := bytes.LastIndexByte(data[:end], '\n')
+			if e < 0 {
+				return ""
+			}
+			if n == k {
+				data = data[e+1:]
+				break
+			}
+			end = e
+		}
+	} else {
+		for ; k > 0; k-- {
+			e := bytes.IndexByte(data, '\n')
+			if e < 0 {
+				return ""
+			}
+			data = data[e+1:]
+		}
+	}
+	if e := bytes.IndexByte(data, '\n'); e >= 0 {
+		data = data[:e]
+	}
+	data = bytes.TrimSuffix(data, []byte{'\r'})
+	c := r.pl.src[cTime]
+	if c < 0 {
+		return ""
+	}
+	fields := splitFields(data, r.delim, r.ws, nil)
+	if c >= len(fields) {
+		return ""
+	}
+	return string(bytes.Trim(trimField(fields[c]), " \t"))
 }
 
 // firstTime returns the first time that is not NaN and its line; NaN when
@@ -1154,8 +1236,19 @@ func firstTime(t []float64, lines []int) (float64, int) {
 	return math.NaN(), 0
 }
 
-func backwardsErr(name string, line int, col string, t, prev float64) *Error {
-	return lineErr(name, line, col, formatSeconds(t), "time goes backwards: %s after %s", formatSeconds(t), formatSeconds(prev))
+// backwardsErr is the error of a step back in time on line line, to t
+// (written text) from prev (written prevText, on line prevLine).
+func (r *csvReader) backwardsErr(line int, t float64, text string, prev float64, prevText string, prevLine int) *Error {
+	at := ""
+	if prevLine > 0 {
+		at = fmt.Sprintf("line %d", prevLine)
+	}
+	naive := text != "" && prevText != "" && r.pl.textNaive(text) && r.pl.textNaive(prevText)
+	shown := text
+	if shown == "" {
+		shown = formatSeconds(t)
+	}
+	return lineErr(r.name, line, r.pl.header[r.pl.src[cTime]], shown, "%s", backwardsMsg(t, prev, text, prevText, at, naive))
 }
 
 func (r *csvReader) Next() bool {
@@ -1191,7 +1284,7 @@ func (r *csvReader) Next() bool {
 			r.err = res.err
 			if r.pl.orderAll && res.firstLine > 0 && res.firstTime < r.last {
 				// Rows before the bad one step back from the last chunk.
-				r.err = backwardsErr(r.name, res.firstLine, r.pl.header[r.pl.src[cTime]], res.firstTime, r.last)
+				r.err = r.backwardsErr(res.firstLine, res.firstTime, res.firstText, r.last, r.lastText, r.lastLine)
 			}
 			r.stop()
 			return false
@@ -1201,7 +1294,7 @@ func (r *csvReader) Next() bool {
 		}
 		if r.pl.orderAll && res.firstTime < r.last {
 			res.rec.Release()
-			r.err = backwardsErr(r.name, res.firstLine, r.pl.header[r.pl.src[cTime]], res.firstTime, r.last)
+			r.err = r.backwardsErr(res.firstLine, res.firstTime, res.firstText, r.last, r.lastText, r.lastLine)
 			r.stop()
 			return false
 		}
@@ -1209,7 +1302,7 @@ func (r *csvReader) Next() bool {
 			if i, prev, g := r.pl.groupBackwards(res.rec); i >= 0 {
 				t := res.rec.Column(0).(*array.Float64).Value(i)
 				res.rec.Release()
-				r.err = lineErr(r.name, res.lines[i], r.pl.header[r.pl.src[cTime]], formatSeconds(t), "%s", groupBackwardsMsg(t, prev, g))
+				r.err = lineErr(r.name, res.lines[i], r.pl.header[r.pl.src[cTime]], formatSeconds(t), "%s", groupBackwardsMsg(t, prev, g, !r.pl.timeUTC && (res.naiveLine > 0 || r.pl.naiveWarned)))
 				r.stop()
 				return false
 			}
@@ -1223,8 +1316,12 @@ func (r *csvReader) Next() bool {
 		if res.naiveLine > 0 {
 			r.pl.naiveTime(fmt.Sprintf("%s:%d", r.name, res.naiveLine), "times such as "+quoteText(res.naiveText), false)
 		}
+		if !r.pl.orderAll && !r.pl.noTime {
+			r.pl.noteClockChange(res.rec.Column(0).(*array.Float64).Float64Values(), r.name)
+		}
 		if res.lastTime == res.lastTime {
 			r.last = res.lastTime
+			r.lastText, r.lastLine = res.lastText, res.lastLine
 		}
 		r.cur = res.rec
 		return true

@@ -59,6 +59,8 @@ type iagaReader struct {
 	cur      arrow.RecordBatch
 	err      error
 	last     float64
+	lastText string // the last time as written, on line lastLine
+	lastLine int
 	rb       rawBatch
 	done     bool
 	pending  []byte // first data line, read while looking for the header
@@ -546,10 +548,12 @@ func (r *iagaReader) parseRow(ln []byte, rb *rawBatch, hasF bool) error {
 		}
 		v[i] = x
 	}
+	text := string(f[0]) + " " + string(f[1])
 	if r.pl.orderAll && t < r.last {
-		return backwardsErr(r.name, r.line, "DATE TIME", t, r.last)
+		// IAGA-2002 times are UTC: no clock change.
+		return lineErr(r.name, r.line, "DATE TIME", text, "%s", backwardsMsg(t, r.last, text, r.lastText, fmt.Sprintf("line %d", r.lastLine), false))
 	}
-	r.last = t
+	r.last, r.lastText, r.lastLine = t, text, r.line
 	e, n, u := r.toENU([3]float64{v[0], v[1], v[2]})
 	rb.f[cTime] = append(rb.f[cTime], t)
 	rb.f[cBx] = append(rb.f[cBx], e)

@@ -63,7 +63,10 @@ func TestIAGAJoinedDays(t *testing.T) {
 		name, text, want string
 	}{
 		{"days out of order", string(day2) + string(day1),
-			"bou.min:1491: column DATE TIME: time goes backwards: 1414800000 after 1414972740"},
+			// The times as the file writes them (the first row of 1 November
+			// after the last of 2 November, the first file's last data line
+			// 1465), not as Unix seconds.
+			`bou.min:1491: column DATE TIME: time goes backwards: "2014-11-01 00:00:00.000" after "2014-11-02 23:59:00.000" (line 1465), 47 h 59 min back`},
 		{"another observatory", string(day1) + strings.Replace(string(day2), " IAGA CODE              BOU ", " IAGA CODE              FRD ", 1),
 			`bou.min:1466: column IAGA CODE: this IAGA-2002 header (of a file joined on here?) gives IAGA CODE "FRD" where the first header gives "BOU"`},
 		{"another data type", string(day1) + strings.Replace(string(day2), "Data Type              variation ", "Data Type              definitive", 1),

@@ -6,6 +6,7 @@ import (
 	"regexp"
 	"strconv"
 	"strings"
+	"time"
 	"unicode"
 	"unicode/utf8"
 
@@ -51,6 +52,11 @@ type plan struct {
 	timeUTC, naiveWarned bool
 	// timeChecked: the first time has been looked at by checkTimeUnit.
 	timeChecked bool
+	// clockLast is the last time read, in file order, and clockWarned
+	// set once a step back like the hour repeated when the clocks go
+	// back has been warned about (noteClockChange).
+	clockLast   float64
+	clockWarned bool
 	// Rows read, and rows without a group (an empty cell or a null in the
 	// group column), the first of them at groupEmptyAt (see noteGroups).
 	groupRows, groupEmpty int64
@@ -177,6 +183,20 @@ func InputFrame(r Reader) (f Frame, stated, ok bool) {
 		return p.inFrame, p.frameStated, true
 	}
 	return FrameENU, false, false
+}
+
+// TimeBasis says how a reader of this package took the input's times,
+// complete once Next has returned false: naive when they were written
+// without a UTC offset (text, or Arrow timestamps without a time zone)
+// and read as UTC, as warned (they may be a zone's local times); saidUTC
+// when the time column said they are UTC (its unit). Both are false for
+// times that carry their offset, seconds since 1970, an IAGA-2002 file's
+// times (UTC by the format) and readers of other packages.
+func TimeBasis(r Reader) (naive, saidUTC bool) {
+	if p := planOf(r); p != nil {
+		return p.naiveWarned, p.timeUTC
+	}
+	return false, false
 }
 
 // ColumnMapping describes where one canonical column came from.
@@ -727,8 +747,16 @@ func (p *plan) groupBackwards(rec arrow.RecordBatch) (row int, prev float64, gro
 	return -1, 0, ""
 }
 
-func groupBackwardsMsg(t, prev float64, group string) string {
-	return fmt.Sprintf("time goes backwards within group %q: %s after %s", group, formatSeconds(t), formatSeconds(prev))
+// groupBackwardsMsg words a step back in time within a group; naive:
+// the log's times were written without a UTC offset (and its unit does not
+// say UTC), so a step back like the hour repeated when the clocks go back
+// is said to look like one.
+func groupBackwardsMsg(t, prev float64, group string, naive bool) string {
+	msg := fmt.Sprintf("time goes backwards within group %q: %s after %s, %s back", group, secondsText(t), secondsText(prev), durationText(prev-t))
+	if naive && ClockChangeBack(t, prev) {
+		msg += fmt.Sprintf(", an hour less the time between the readings: local times written without their UTC offset across the night the clocks went back an hour (the hour before %s repeated)? Write each time with its offset (summer time's before the change, standard time's after it)", time.Unix(int64(math.Ceil(prev/3600)*3600), 0).UTC().Format("15:04"))
+	}
+	return msg
 }
 
 // autoName resolves a header name to a canonical column without a mapping:
@@ -1093,5 +1121,15 @@ func lastTime(t []float64, prev float64) float64 {
 }
 
 func formatSeconds(v float64) string { return strconv.FormatFloat(v, 'f', -1, 64) }
+
+// secondsText words a time in seconds, with the time it stands for when
+// it is a Unix time: "1414890015 (2014-11-02T01:00:15Z)".
+func secondsText(v float64) string {
+	s := formatSeconds(v)
+	if v >= 1e8 && v < 1e11 {
+		s += " (" + time.Unix(0, int64(math.Round(v*1e3))*1e6).UTC().Format("2006-01-02T15:04:05.999Z07:00") + ")"
+	}
+	return s
+}
 
 var nan = math.NaN()

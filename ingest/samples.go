@@ -46,6 +46,14 @@ type Samples struct {
 	// readers of this package.
 	InFrame       Frame
 	InFrameStated bool
+	// NaiveTime: the log's times were written without a UTC offset
+	// (text, or Arrow timestamps without a time zone) and read as UTC,
+	// with a warning: they may be local times. TimeSaidUTC: the time
+	// column said its times are UTC (its unit, as in "Time (UTC)" or
+	// --unit time=UTC). Neither is set for times that carry their
+	// offset, seconds since 1970, or an IAGA-2002 file's times (UTC by
+	// the format). Set by Collect for readers of this package (TimeBasis).
+	NaiveTime, TimeSaidUTC bool
 }
 
 // Len returns the number of rows.
@@ -149,6 +157,7 @@ func Collect(r Reader) (*Samples, error) {
 		return nil, err
 	}
 	s.Warnings = Warnings(r)
+	s.NaiveTime, s.TimeSaidUTC = TimeBasis(r)
 	if s.Len() == 0 {
 		return nil, fileErr(s.Source, nil, "no data rows")
 	}

@@ -194,6 +194,13 @@ func joinBaseLogs(parts []*ingest.Samples) (*ingest.Samples, error) {
 		Meta:          first.Meta,
 		InFrame:       first.InFrame,
 		InFrameStated: first.InFrameStated,
+		TimeSaidUTC:   true,
+	}
+	// The joined record's times may be local when any file's may
+	// (zoneShiftHint).
+	for _, p := range parts {
+		out.NaiveTime = out.NaiveTime || p.NaiveTime
+		out.TimeSaidUTC = out.TimeSaidUTC && p.TimeSaidUTC
 	}
 	n := len(rows)
 	out.Time = make([]float64, n)

@@ -375,6 +375,7 @@ func readSamples(ctx context.Context, path string, opts ...ingest.Option) (*inge
 		return nil, err
 	}
 	s.Warnings = ingest.Warnings(r) // the wrapper hides them from Collect
+	s.NaiveTime, s.TimeSaidUTC = ingest.TimeBasis(r)
 	s.InFrame, s.InFrameStated, _ = ingest.InputFrame(r)
 	s.Source = path
 	return s, nil

@@ -349,9 +349,17 @@ func inspectOrder(ctx context.Context, path string, opts []ingest.Option, order 
 		in.Warnings = append(in.Warnings, "time: the log is read from a pipe, once, so its gaps and steps back are counted in file order, not in time order; inspect a saved copy for the counts in time order")
 		return nil
 	}
-	times, groups, err := readTimes(ctx, path, opts)
+	times, groups, naive, err := readTimes(ctx, path, opts)
 	if err != nil {
 		return err
+	}
+	// A step back that looks like the hour repeated when the clocks go
+	// back, in times written without their UTC offset: per-group or any
+	// order would read the repeated hour an hour early, so per-group is
+	// not advised for it (found in review).
+	clock := ""
+	if naive {
+		clock = clockChangeNote(times)
 	}
 	// per-group without a group column: ingest reads the log as one
 	// stretch that must run forward, and suggesting per-group is no help.
@@ -432,16 +440,25 @@ func inspectOrder(ctx context.Context, path string, opts []ingest.Option, order 
 		}
 	case order == ingest.TimeAnyOrder:
 		warn = fmt.Sprintf("time: goes backwards %s, as --time-order any allows; gaps are counted in time order", timesWord(total))
+		if clock != "" {
+			warn += "; but " + clock
+		}
 	case order == ingest.TimeOrderedPerGroup:
 		switch {
 		case back > 0:
 			warn = fmt.Sprintf("time: goes backwards %s within a group: convert, locate, calibrate and replay refuse it with --time-order per-group (--time-order any allows it); gaps are counted in time order within each group", timesWord(back))
 		case backGroups > 0:
 			warn = fmt.Sprintf("time: goes backwards %s from one group to the next, as --time-order per-group allows; within each group it runs forward", timesWord(backGroups))
+			if clock != "" {
+				warn += "; but " + clock
+			}
 		}
 	default:
 		warn = fmt.Sprintf("time: goes backwards %s: convert, locate and calibrate refuse the log unless --time-order says otherwise (per-group: forward within each group; any); gaps are counted in time order", timesWord(back))
-		if groups != nil && back > 0 && perGroupForward(times, groups) {
+		switch {
+		case clock != "":
+			warn += "; " + clock
+		case groups != nil && back > 0 && perGroupForward(times, groups):
 			warn += "; within each group it runs forward, so --time-order per-group reads it"
 		}
 	}
@@ -485,23 +502,42 @@ func perGroupForward(times []float64, groups []int32) bool {
 	return true
 }
 
+// clockChangeNote words the first step back in times (file order, seconds
+// read from local times written without their UTC offset) that looks like
+// the hour repeated when the clocks go back (ingest.ClockChangeBack); ""
+// when there is none.
+func clockChangeNote(times []float64) string {
+	prev := math.NaN()
+	for _, t := range times {
+		if math.IsNaN(t) {
+			continue
+		}
+		if t < prev && ingest.ClockChangeBack(t, prev) {
+			f := func(v float64) string { return time.Unix(int64(math.Floor(v)), 0).UTC().Format("2006-01-02T15:04:05") }
+			return fmt.Sprintf("the step back from %s to %s looks like local times without their offset across the night the clocks went back an hour (the reader's warning on the time column says more): read in any order or per group, the repeated hour's readings would be placed an hour early",
+				f(prev), f(t))
+		}
+		prev = t
+	}
+	return ""
+}
+
 // readTimes reads the time column of the log at path (NaN where missing)
 // and its group column as small integers (nil when it has none), in any
-// order, with the read options opts.
-func readTimes(ctx context.Context, path string, opts []ingest.Option) ([]float64, []int32, error) {
+// order, with the read options opts; naive: its times were written
+// without a UTC offset (ingest.TimeBasis).
+func readTimes(ctx context.Context, path string, opts []ingest.Option) (times []float64, groups []int32, naive bool, err error) {
 	opts = append(append([]ingest.Option(nil), opts...), ingest.WithAllowMissing(true), ingest.WithTimeOrder(ingest.TimeAnyOrder),
 		ingest.WithAllowUnterminatedStream(true), ingest.WithOrigin(ingest.Geodetic{}))
 	r, err := ingest.Open(path, opts...)
 	if err != nil {
-		return nil, nil, err
+		return nil, nil, false, err
 	}
 	defer r.Release()
-	var times []float64
-	var groups []int32
 	ids := map[string]int32{}
 	for r.Next() {
 		if err := ctx.Err(); err != nil {
-			return nil, nil, err
+			return nil, nil, false, err
 		}
 		rec := r.RecordBatch()
 		for i, f := range rec.Schema().Fields() {
@@ -510,7 +546,7 @@ func readTimes(ctx context.Context, path string, opts []ingest.Option) ([]float6
 			case ingest.ColTime:
 				fa, ok := col.(*array.Float64)
 				if !ok {
-					return nil, nil, fmt.Errorf("%s: time column has type %s, want float64", path, col.DataType())
+					return nil, nil, false, fmt.Errorf("%s: time column has type %s, want float64", path, col.DataType())
 				}
 				times = append(times, fa.Float64Values()...)
 			case ingest.ColGroup:
@@ -530,7 +566,8 @@ func readTimes(ctx context.Context, path string, opts []ingest.Option) ([]float6
 		}
 	}
 	if err := r.Err(); err != nil {
-		return nil, nil, err
+		return nil, nil, false, err
 	}
-	return times, groups, nil
+	naive, _ = ingest.TimeBasis(r)
+	return times, groups, naive, nil
 }

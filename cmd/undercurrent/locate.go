@@ -1234,6 +1234,13 @@ var baseFlagHint = regexp.MustCompile(`(^|[^-a-z])--(column|unit) `)
 // half hours (up to 14 hours either way, the span of the world's time
 // zones), would cover the rover log's time span: times written without a
 // UTC offset in a time zone's local time and read as UTC; "" otherwise.
+// The hint is about the log whose times can be local times so read (those
+// written without an offset, Samples.NaiveTime): the base's, the survey's
+// (a base of IAGA-2002, UTC by the format, or of times with their offset
+// or in seconds since 1970, beside a survey logged in local time: found in
+// review, the hint had told the user to put an offset into the
+// observatory's times, with the zone's sign turned), or either when both
+// can; when neither can, a clock set to a zone's time.
 func zoneShiftHint(base, rover *ingest.Samples) string {
 	span := func(t []float64) (lo, hi float64) {
 		lo, hi = math.Inf(1), math.Inf(-1)
@@ -1260,6 +1267,10 @@ func zoneShiftHint(base, rover *ingest.Samples) string {
 			civil = append(civil, 60*h)
 		}
 	}
+	has := map[int]bool{}
+	for _, m := range civil {
+		has[m] = true
+	}
 	sort.Slice(civil, func(i, j int) bool {
 		a, b := civil[i], civil[j]
 		if a < 0 {
@@ -1270,24 +1281,122 @@ func zoneShiftHint(base, rover *ingest.Samples) string {
 		}
 		return a < b || a == b && civil[i] > civil[j]
 	})
+	zone := func(m int) string {
+		zs := "+"
+		if m < 0 {
+			zs, m = "-", -m
+		}
+		return fmt.Sprintf("%s%02d:%02d", zs, m/60, m%60)
+	}
+	stamp := func(t float64) string { return time.Unix(int64(math.Floor(t)), 0).UTC().Format("2006-01-02T15:04:05") }
+	// Why a log's times cannot be local times read as UTC.
+	utcWhy := func(s *ingest.Samples) string {
+		switch {
+		case s.Meta["elements"] != "":
+			return "an IAGA-2002 file's times are UTC by the format"
+		case s.TimeSaidUTC:
+			return "its time column says they are UTC"
+		}
+		return "they carry their UTC offset or are seconds since 1970, UTC either way"
+	}
+	// local words the hint for one log read m minutes late (its local
+	// times of zone UTC+m read as UTC); t0 is its first time.
+	local := func(who string, m int, t0 float64) string {
+		return fmt.Sprintf("are %s times the local times of a zone UTC%s written without their offset (and so read as UTC)? If so, write the offset into them (such as %s%s)", who, zone(m), stamp(t0), zone(m))
+	}
+	// Every shift a civil zone gives one log or the other: the base's
+	// times read m minutes late (its local times of zone UTC+m), or the
+	// survey's read -m minutes late (zone UTC-m), the same shift of one
+	// against the other; the smallest first.
+	var shifts []int
 	for _, m := range civil {
-		// Local times read as UTC are late by the zone's offset.
-		sh := -60 * float64(m)
-		if blo+sh <= rlo && bhi+sh >= rhi {
-			h := math.Abs(sh) / 3600
-			dir := "later"
-			if sh < 0 {
-				dir = "earlier"
-			}
-			zs, zone := "+", m
-			if zone < 0 {
-				zs, zone = "-", -zone
-			}
-			return fmt.Sprintf("the base record would cover it if its times were %g h %s, a time zone's offset: are they the local times of a zone UTC%s%02d:%02d written without their offset (and so read as UTC)? If so, write the offset into them (such as %s%s%02d:%02d); times in seconds since 1970 are UTC already, and a shift there is a clock set wrong",
-				h, dir, zs, zone/60, zone%60, time.Unix(int64(blo), 0).UTC().Format("2006-01-02T15:04:05"), zs, zone/60, zone%60)
+		shifts = append(shifts, m)
+		if !has[-m] {
+			shifts = append(shifts, -m)
 		}
 	}
+	sort.SliceStable(shifts, func(i, j int) bool {
+		a, b := shifts[i], shifts[j]
+		if a < 0 {
+			a = -a
+		}
+		if b < 0 {
+			b = -b
+		}
+		return a < b
+	})
+	roverName := "the survey log's"
+	if rover.Source != "" {
+		roverName = rover.Source + "'s"
+	}
+	iaga := base.Meta["elements"] != ""
+	for _, m := range shifts {
+		sh := -60 * float64(m)
+		if !(blo+sh <= rlo && bhi+sh >= rhi) {
+			continue
+		}
+		// Which log's times can be the ones off: those written without
+		// an offset, in a zone that exists.
+		bl, rl := base.NaiveTime && has[m], rover.NaiveTime && has[-m]
+		h := math.Abs(sh) / 3600
+		bdir, rdir := "later", "earlier"
+		if sh < 0 {
+			bdir, rdir = "earlier", "later"
+		}
+		switch {
+		case bl && rl:
+			return fmt.Sprintf("the base record would cover it if its times were %g h %s, or the survey's %g h %s, a time zone's offset: both logs give times without a UTC offset, so either can be local times read as UTC: %s, or %s",
+				h, bdir, h, rdir, local(roverName, -m, rlo), local("the base record's", m, blo))
+		case bl:
+			return fmt.Sprintf("the base record would cover it if its times were %g h %s, a time zone's offset: %s; the survey's times cannot be the ones off (%s)",
+				h, bdir, local("the base record's", m, blo), utcWhy(rover))
+		case rl:
+			return fmt.Sprintf("the base record would cover it if the survey's times were %g h %s, a time zone's offset: %s; the base record's times cannot be the ones off (%s)",
+				h, rdir, local(roverName, -m, rlo), utcWhy(base))
+		case base.NaiveTime || rover.NaiveTime:
+			// The log that can be local would be in no zone: a clock
+			// set wrong, no hint.
+			continue
+		}
+		// Neither log's times can be local times read as UTC: a clock
+		// set to a zone's time (a logger writing seconds since 1970 from
+		// a clock on local time).
+		var who string
+		switch {
+		case has[-m] && (iaga || !has[m]):
+			who = fmt.Sprintf("the survey logger's, set to UTC%s", zone(-m))
+		case !has[-m]:
+			who = fmt.Sprintf("the base logger's, set to UTC%s", zone(m))
+		default:
+			who = fmt.Sprintf("the base logger's set to UTC%s, or the survey logger's to UTC%s", zone(m), zone(-m))
+		}
+		if iaga && !has[-m] {
+			continue
+		}
+		return fmt.Sprintf("the base record would cover it if the survey's times were %g h %s, a time zone's offset, but neither log's times can be local times read as UTC (the base record's: %s; the survey's: %s): is a clock set to a zone's time instead (%s)? If so, correct that log's times by the offset",
+			h, rdir, utcWhy(base), utcWhy(rover), who)
+	}
 	return ""
+}
+
+// baseNoVerticalError refuses an IAGA-2002 base record that reports no
+// vertical component (its third element NUL): the base correction takes
+// the observatory's variation off all three of the survey's axes. A
+// correction of the horizontal axes alone is not made: the vertical's
+// variation (of the same order as the horizontal's at mid latitudes, the
+// daily variation's Z tens of nT: from memory) would stay in bz, which
+// the fits read as the currents' field along with the corrected bx and
+// by, under a report saying the field was corrected.
+func baseNoVerticalError(path, reported, elements string, vec []string) error {
+	hdr := fmt.Sprintf("its column line's elements %s", elements)
+	if reported != "" {
+		hdr = fmt.Sprintf("its header's Reported %s", reported)
+	}
+	held := "no vector element"
+	if len(vec) > 0 {
+		held = strings.Join(vec, " and ") + " only"
+	}
+	return fmt.Errorf("base record %s reports no vertical component (%s: %s, no Z): the base correction takes the observatory's variation off all three axes of the survey's field and has nothing to take off bz; correcting bx and by alone would leave the vertical's variation in bz, which the fits read as the currents' field, so it is not done. Give the observatory's record for the same time that reports Z (its variation or adjusted data in XYZ, HDZ or HEZ), or locate without --base (no time variation is taken off)", path, hdr, held)
 }
 
 // nonEmpty returns s as a one-element list, or nil when it is empty.
@@ -1318,6 +1427,14 @@ func checkBaseLog(o *locateOptions, base *ingest.Samples) error {
 			what = fmt.Sprintf("an IAGA-2002 record of elements %s, the instrument's own axes", base.Meta["elements"])
 		}
 		return fmt.Errorf("base record %s is %s, not east-north-up, and holds nothing to turn it with: a base log must give the field in geographic (or geomagnetic) axes; use the observatory's XYZ, HDZ or HEZ variation data for the same days instead", o.base, what)
+	}
+	if el := base.Meta["elements"]; el != "" {
+		if vec := strings.Fields(ingest.IAGAVectorElements(el)); len(vec) < 3 {
+			// A file of H and E alone (Reported HENULNUL): refused
+			// before as "fewer than two valid values in column bz", a
+			// column the file does not have (found in review).
+			return baseNoVerticalError(o.base, base.Meta["reported"], el, vec)
+		}
 	}
 	for _, c := range []struct {
 		name string

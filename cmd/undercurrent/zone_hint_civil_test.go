@@ -27,7 +27,9 @@ func TestZoneHintCivilOffsets(t *testing.T) {
 		{20700, "UTC+05:45"},
 		{-900, ""},
 	} {
-		base := &ingest.Samples{Time: []float64{t0 + c.shift, t0 + 1200 + c.shift}}
+		// The base's times were written without an offset: they can be
+		// local.
+		base := &ingest.Samples{Time: []float64{t0 + c.shift, t0 + 1200 + c.shift}, NaiveTime: true}
 		h := zoneShiftHint(base, rover)
 		if c.want == "" && h != "" || c.want != "" && !strings.Contains(h, c.want+" written without") {
 			t.Errorf("base %+g s off: hint %q, want %q", c.shift, h, c.want)
