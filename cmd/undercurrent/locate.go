@@ -1271,14 +1271,14 @@ func zoneShiftHint(base, rover *ingest.Samples) string {
 	for _, m := range civil {
 		has[m] = true
 	}
+	abs := func(m int) int {
+		if m < 0 {
+			return -m
+		}
+		return m
+	}
 	sort.Slice(civil, func(i, j int) bool {
-		a, b := civil[i], civil[j]
-		if a < 0 {
-			a = -a
-		}
-		if b < 0 {
-			b = -b
-		}
+		a, b := abs(civil[i]), abs(civil[j])
 		return a < b || a == b && civil[i] > civil[j]
 	})
 	zone := func(m int) string {
@@ -1315,16 +1315,7 @@ func zoneShiftHint(base, rover *ingest.Samples) string {
 			shifts = append(shifts, -m)
 		}
 	}
-	sort.SliceStable(shifts, func(i, j int) bool {
-		a, b := shifts[i], shifts[j]
-		if a < 0 {
-			a = -a
-		}
-		if b < 0 {
-			b = -b
-		}
-		return a < b
-	})
+	sort.SliceStable(shifts, func(i, j int) bool { return abs(shifts[i]) < abs(shifts[j]) })
 	roverName := "the survey log's"
 	if rover.Source != "" {
 		roverName = rover.Source + "'s"

@@ -2,14 +2,9 @@ package live
 
 import (
 	"bytes"
-	"context"
-	"log/slog"
 	"strings"
 	"sync"
 	"testing"
-	"time"
-
-	"undercurrent/ingest/broker"
 )
 
 // lockedBuffer is a bytes.Buffer safe for a logger in another goroutine.
@@ -50,40 +45,7 @@ func TestDeadLetterWarningAdvisesRoomThatWorks(t *testing.T) {
 	const store = 10_000_000
 	run := func(brokerLines string) (logged string, err error) {
 		t.Helper()
-		srv, err := broker.StartServer(broker.ServerConfig{StoreDir: t.TempDir(), MQTTPort: -1, MaxStore: store})
-		if err != nil {
-			t.Fatal(err)
-		}
-		defer srv.Shutdown()
-		nc, err := broker.Connect(srv.ClientURL(), "w1", broker.Auth{})
-		if err != nil {
-			t.Fatal(err)
-		}
-		defer nc.Close()
-		site, err := ParseSite("site.toml", []byte("[broker]\nstore_max_bytes = 10_000_000\n"+brokerLines+"\n"+minimalSite))
-		if err != nil {
-			t.Fatal(err)
-		}
-		var buf lockedBuffer
-		svc, err := New(Config{Site: site, Conn: nc, Worker: "w1", HTTP: "-", NewEstimator: newMean, Logger: slog.New(slog.NewTextHandler(&buf, nil))})
-		if err != nil {
-			t.Fatal(err)
-		}
-		ctx, cancel := context.WithCancel(context.Background())
-		done := make(chan error, 1)
-		go func() { done <- svc.Run(ctx) }()
-		// The dead-letter bound is logged (INFO or WARN) once the
-		// streams are made; Run returns at once if they cannot be.
-		for !strings.Contains(buf.String(), "dead-letter") && !strings.Contains(buf.String(), "dead letters") {
-			select {
-			case err := <-done:
-				cancel()
-				return buf.String(), err
-			case <-time.After(20 * time.Millisecond):
-			}
-		}
-		cancel()
-		return buf.String(), <-done
+		return serveUntilBound(t, t.TempDir(), store, "store_max_bytes = 10_000_000\n"+brokerLines)
 	}
 
 	logged, err := run("data_max_bytes = 8_000_000")

@@ -13,8 +13,23 @@ import (
 
 // serveOnStore runs the service once against an embedded broker on dir
 // with a store of maxStore bytes, as serve does (the store's size given),
-// until the dead-letter bound is logged, and returns the log.
+// until the dead-letter bound is logged, and returns the log; it fails the
+// test if serve stops.
 func serveOnStore(t *testing.T, dir string, maxStore int64, brokerLines string) string {
+	t.Helper()
+	logged, err := serveUntilBound(t, dir, maxStore, brokerLines)
+	if err != nil {
+		t.Fatalf("serve stopped: %v\n%s", err, logged)
+	}
+	return logged
+}
+
+// serveUntilBound runs the service once against an embedded broker on dir
+// with a store of maxStore bytes, as serve does (the store's size given),
+// until the dead-letter bound is logged (INFO or WARN), and returns the
+// log and, when serve stopped before (the streams could not be made), its
+// error.
+func serveUntilBound(t *testing.T, dir string, maxStore int64, brokerLines string) (string, error) {
 	t.Helper()
 	srv, err := broker.StartServer(broker.ServerConfig{StoreDir: dir, MQTTPort: -1, MaxStore: maxStore})
 	if err != nil {
@@ -43,13 +58,12 @@ func serveOnStore(t *testing.T, dir string, maxStore int64, brokerLines string) 
 		select {
 		case err := <-done:
 			cancel()
-			t.Fatalf("serve stopped: %v\n%s", err, buf.String())
+			return buf.String(), err
 		case <-time.After(20 * time.Millisecond):
 		}
 	}
 	cancel()
-	<-done
-	return buf.String()
+	return buf.String(), <-done
 }
 
 // TestDeadLetterBoundFollowsLargerStore: serve on a store too small to
