@@ -100,10 +100,10 @@ func Build(stations []Station, set *Settings) (*Route, error) {
 	}
 	measure(r.Stations)
 	// Repeats of a station (a route walked again) in the order of the
-	// walks, so that chainage runs from the first walk's (repeats.go).
-	if walkOrder(r.Stations, repeatGap(r.Stations)) {
-		measure(r.Stations)
-	}
+	// walks, so that chainage runs from the first walk's, and the
+	// chainage measured through the sets of repeats, one point a set,
+	// so that repeats add no length (repeats.go).
+	walkOrder(r.Stations, repeatGap(r.Stations))
 	gap := repeatGap(r.Stations)
 	orient(r.Stations, gap)
 	cornerChainage(r.Stations, set)
