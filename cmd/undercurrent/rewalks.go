@@ -68,29 +68,24 @@ func splitRewalkedGroups(logs []string, all []*ingest.Samples) ([]string, map[st
 			}
 			rows[v] = append(rows[v], i)
 		}
-		var splits []rewalkSplit
+		// Each group's first walk: its rows before its first pause
+		// (rewalkstation.go measures the spacing on these).
+		first := map[string][]int{}
 		for _, v := range order {
-			idx := rows[v]
+			first[v] = pauseRuns(rows[v], s.Time)[0]
+		}
+		// A set of runs shifted alike off their first walks: walks again
+		// with a position offset (rewalkstation.go).
+		offsetRun, offset := rewalkOffset(s, k, rows, order, first)
+		var splits []rewalkSplit
+		var mislabels []mislabel
+		for _, v := range order {
 			// Runs cut at pauses over reusedApartS.
-			var runs [][]int
-			start := 0
-			for j := 1; j <= len(idx); j++ {
-				if j == len(idx) || s.Time[idx[j]]-s.Time[idx[j-1]] > reusedApartS {
-					runs = append(runs, idx[start:j])
-					start = j
-				}
-			}
+			runs := pauseRuns(rows[v], s.Time)
 			if len(runs) < 2 {
 				continue
 			}
-			partOf := func(r []int) *logPart {
-				p := &logPart{log: k, span: newReadingSpan()}
-				for _, i := range r {
-					p.span.add(s.X[i], s.Y[i], s.Time[i])
-					p.xy = append(p.xy, [2]float64{s.X[i], s.Y[i]})
-				}
-				return p
-			}
+			partOf := func(r []int) *logPart { return runPart(s, k, r) }
 			type walk struct {
 				at   *logPart
 				name string
@@ -106,7 +101,7 @@ func splitRewalkedGroups(logs []string, all []*ingest.Samples) ([]string, map[st
 				var in *walk
 				again, beside := false, -1.0
 				spacing := 0.0
-				for _, w := range walks {
+				for wi, w := range walks {
 					if together(w.at, p) {
 						in = w
 						break
@@ -115,7 +110,10 @@ func splitRewalkedGroups(logs []string, all []*ingest.Samples) ([]string, map[st
 						// The same ground again, after the pause: a walk
 						// again at w's station, or another traverse
 						// beside it (rewalkstation.go).
-						if at, off, nearest := rewalkStation(w.at, p, s, rows, v); at {
+						if at, off, nearest := rewalkStation(w.at, p, s, first, v); at {
+							again = true
+						} else if r, ok := offsetRun[v]; ok && r == j && wi == 0 {
+							// Shifted like the rest of its session.
 							again = true
 						} else if beside < 0 {
 							beside, spacing = off, nearest
@@ -126,7 +124,7 @@ func splitRewalkedGroups(logs []string, all []*ingest.Samples) ([]string, map[st
 					if in != nil || again {
 						break
 					}
-					if at, _, _ := rewalkStation(w.at, p, s, rows, v); at || together(w.at, p) {
+					if at, _, _ := rewalkStation(w.at, p, s, first, v); at || together(w.at, p) {
 						in = w // the traverse beside, continued or walked again
 					}
 				}
@@ -140,7 +138,7 @@ func splitRewalkedGroups(logs []string, all []*ingest.Samples) ([]string, map[st
 					in = &walk{at: &logPart{log: k, span: newReadingSpan()}, name: name}
 					lines = append(lines, in)
 					pause := s.Time[runs[j][0]] - s.Time[runs[j-1][len(runs[j-1])-1]]
-					warns = append(warns, mislabelWarning(logs[k], v, name, beside, spacing, pause, s.Time[runs[j][0]]))
+					mislabels = append(mislabels, mislabel{v: v, name: name, off: beside, spacing: spacing, pause: pause, at: s.Time[runs[j][0]]})
 				}
 				if in == nil && (!again || short) {
 					in = which[j-1] // elsewhere, or too short to be a walk: left as before
@@ -171,7 +169,10 @@ func splitRewalkedGroups(logs []string, all []*ingest.Samples) ([]string, map[st
 				splits = append(splits, sp)
 			}
 		}
-		if w := rewalkWarning(logs[k], splits); w != "" {
+		if w := mislabelWarning(logs[k], mislabels); w != "" {
+			warns = append(warns, w)
+		}
+		if w := rewalkWarning(logs[k], splits, offset); w != "" {
 			warns = append(warns, w)
 		}
 	}
@@ -195,9 +196,14 @@ type rewalkSplit struct {
 // later walks and when the first, second, ... walks began (each the
 // earliest over the groups). A day walked again in one log had drawn one
 // such warning per traverse, 21 alike, where the same survey in two logs
-// draws one (nameReusedGroups; found in review). Empty without splits.
-func rewalkWarning(path string, splits []rewalkSplit) string {
-	const rule = "A group's readings that cover the same ground again more than %g s after the ones before are another walk, as in several logs (a traverse continued after a pause, or walked out and back without one, is one walk)"
+// draws one (nameReusedGroups; found in review). offset, m, when not
+// zero, is the common shift of a session's later walks off their first
+// walks' lines (rewalkOffset), named once. Empty without splits.
+func rewalkWarning(path string, splits []rewalkSplit, offset float64) string {
+	rule := "A group's readings that cover the same ground again more than %g s after the ones before are another walk, as in several logs (a traverse continued after a pause, or walked out and back without one, is one walk)"
+	if offset > 0 {
+		rule = fmt.Sprintf("The later walks lie %.2g m across their first walks' lines, every one shifted alike (a position offset between the walks, such as an uncorrected GNSS offset between days gives, not traverses given another's name), so taken for walks again. ", offset) + rule
+	}
 	switch len(splits) {
 	case 0:
 		return ""
