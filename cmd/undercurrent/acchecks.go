@@ -49,11 +49,12 @@ import (
 // does so only beyond freqCheckUntrustedHz, and below that warns (see
 // freqEstimate.trusted). Beyond a quarter of 1/window it refuses. An
 // estimate that a line within the windows' separation may have pulled (a
-// mains harmonic, one folded from above Nyquist, or a second line, seen
+// mains harmonic, or one folded from above Nyquist, seen
 // in the log: lineProbe) is not acted on: the run stays at --freq and
 // says why. An estimate not clearly off but too uncertain for one phase
-// across a group (freqLooseDegrees) is warned about, and every group's
-// phase ramp searched for (freqHints). Each group's own frequency is then
+// across a group (freqLooseDegrees) has every group's phase ramp searched
+// for (freqHints), and is warned about when some group's fit cannot bound
+// the turn (looseFreqWarning). Each group's own frequency is then
 // checked against the one used (groupWander).
 // Exact-frequency logs are demodulated exactly as before (the demo's
 // results do not change).
@@ -377,6 +378,20 @@ func isMains(freq float64) bool {
 type demodPlan struct {
 	mains []float64
 	fs    float64
+	// dec is the decimals the signal's frequency is shown with in the
+	// mains warnings (clash, foldClash) when it is an estimate (those of
+	// its sigma, freqDecimals); 0 for a frequency given, shown as given.
+	dec int
+}
+
+// signalHz shows the signal's frequency freq as pl's warnings do: as
+// given, or, for an estimate, to its decimals (an estimate printed in
+// full read "640.0554281726679 Hz"; found in review).
+func (pl demodPlan) signalHz(freq float64) string {
+	if pl.dec > 0 {
+		return strconv.FormatFloat(freq, 'f', pl.dec, 64)
+	}
+	return strconv.FormatFloat(freq, 'g', -1, 64)
 }
 
 // settings returns the demodulation settings at freq in windows of win
@@ -673,10 +688,10 @@ func (pl demodPlan) clash(freq, win float64) string {
 		d := math.Abs(freq - h*m)
 		switch {
 		case d < 1e-9*freq:
-			return fmt.Sprintf("the signal's %g Hz is the %s of the %g Hz mains: a mains field there and the signal cannot be told apart, and its current will be read as the signal's; choose another frequency for the tracer if a mains field is near", freq, harmonicName(h), m)
+			return fmt.Sprintf("the signal's %s Hz is the %s of the %g Hz mains: a mains field there and the signal cannot be told apart, and its current will be read as the signal's; choose another frequency for the tracer if a mains field is near", pl.signalHz(freq), harmonicName(h), m)
 		case d < sep:
-			return fmt.Sprintf("the signal's %g Hz lies %.3g Hz from the %s of the %g Hz mains (%g Hz), closer than %.3g s windows can fit apart (%.3g Hz): a mains field there is not fitted and leaks into the signal as noise or phantom conductors; use --window %.1f or longer",
-				freq, d, harmonicName(h), m, h*m, win, sep, separatingWindow(d))
+			return fmt.Sprintf("the signal's %s Hz lies %.3g Hz from the %s of the %g Hz mains (%g Hz), closer than %.3g s windows can fit apart (%.3g Hz): a mains field there is not fitted and leaks into the signal as noise or phantom conductors; use --window %.1f or longer",
+				pl.signalHz(freq), d, harmonicName(h), m, h*m, win, sep, separatingWindow(d))
 		}
 	}
 	return ""
@@ -711,8 +726,8 @@ func (pl demodPlan) foldClash(s *ingest.Samples, res *calibrate.DemodResult, fre
 	if d < 1e-9*freq {
 		how = "; log at another rate, or through an anti-alias filter"
 	}
-	return fmt.Sprintf("at the log's %.5g Hz sampling the %s of the %g Hz mains (%g Hz), above the Nyquist frequency, folds to %.4g Hz, %.3g Hz from the signal's %g Hz, closer than %.3g s windows can fit apart (%.3g Hz), and a line is there (%.2g times the signal where it is strongest): it is not fitted, leaks into the signal as noise or phantom conductors, and pulls the frequency check%s",
-		pl.fs, harmonicName(h), m, h*m, a, d, freq, win, sep, share, how)
+	return fmt.Sprintf("at the log's %.5g Hz sampling the %s of the %g Hz mains (%g Hz), above the Nyquist frequency, folds to %.4g Hz, %.3g Hz from the signal's %s Hz, closer than %.3g s windows can fit apart (%.3g Hz), and a line is there (%.2g times the signal where it is strongest): it is not fitted, leaks into the signal as noise or phantom conductors, and pulls the frequency check%s",
+		pl.fs, harmonicName(h), m, h*m, a, d, pl.signalHz(freq), win, sep, share, how)
 }
 
 // separatingWindow is the window, s, rounded up to 0.1 s, in which two
@@ -981,10 +996,15 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 		// Not told from --freq, but perhaps not known well enough either:
 		// the offset plus its uncertainty may still turn the phase across
 		// a group by more than one phase per line can follow.
+		// Every group's ramp is then searched for; the warning waits for
+		// the groups' fits (looseFreqWarning), whose ramp searches bound the
+		// turn far more tightly than the windows do (an exact 128 Hz tone
+		// at 5 nT read 128.001 ± 0.003 Hz, "up to 21°" across 8 s, while
+		// each group's ramp pins it to about 1°; found in review).
 		if allowed := 360 * (math.Abs(off) + freqLooseSigmas*est.sigma) * span; allowed > freqLooseDegrees {
 			hints.loose, hints.off = true, off
 			hints.bound = math.Abs(off) + freqLooseSigmas*est.sigma
-			return res, win, append(res.Warnings, looseWarning(est, o.freq, span, allowed)), hints, nil
+			hints.est, hints.freq, hints.span, hints.allowed = est, o.freq, span, allowed
 		}
 		return res, win, res.Warnings, hints, nil
 	}
@@ -1040,14 +1060,6 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 		return res, win, append(res.Warnings, fmt.Sprintf("the windows' fitted frequencies put the AC field at %.*f ± %.*f Hz, not the %g Hz given, but %s lies too near for %.3g s windows to fit it apart, and pulls every window's frequency towards it: the estimate is not trusted, and the results assume the %g Hz given; use --window %.1f or longer to fit the two apart (the frequency is then checked without the pull)",
 			dec, est.freq, dec, est.sigma, o.freq, name, win, o.freq, separatingWindow(d))), freqHints{}, nil
 	}
-	// So does a second line that is not the mains: another tone, a
-	// neighbouring circuit's (a 5 A line at 516 Hz 3 m from a 512 Hz
-	// tracer put the estimate at 512.239 ± 0.003 Hz; found in review).
-	if at, share, ok := pl.neighbourLine(s, res, o.freq, est.freq, win); ok {
-		d := math.Min(math.Abs(o.freq-at), math.Abs(est.freq-at))
-		return res, win, append(res.Warnings, fmt.Sprintf("the windows' fitted frequencies put the AC field at %.*f ± %.*f Hz, not the %g Hz given, but the log holds a second line at about %.1f Hz (%.2g times the signal where that is strongest), too near for %.3g s windows to fit apart, which pulls every window's frequency towards it: the estimate is not trusted, and the results assume the %g Hz given; use --window %.1f or longer to fit the two apart (the frequency is then checked without the pull), and check that the line at %.1f Hz is not the one to locate",
-			dec, est.freq, dec, est.sigma, o.freq, at, share, win, o.freq, separatingWindow(d), at)), freqHints{}, nil
-	}
 	// A window of whole cycles of --freq becomes the nearest whole number
 	// of cycles of the estimate: the windows' phasors are the path averages
 	// the fit models only over whole cycles (calibrate.Window.Travel). Any
@@ -1072,10 +1084,12 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 	// as at --freq, and are computed afresh there: before, they were
 	// dropped with the first demodulation, a strong 50 Hz field left
 	// unfitted by --mains 60 among them (found in review).
-	if w := pl.clash(est.freq, win2); w != "" {
+	pe := pl
+	pe.dec = dec
+	if w := pe.clash(est.freq, win2); w != "" {
 		again.Warnings = append([]string{w}, again.Warnings...)
 	}
-	if w := pl.foldClash(s, again, est.freq, win2); w != "" {
+	if w := pe.foldClash(s, again, est.freq, win2); w != "" {
 		again.Warnings = append([]string{w}, again.Warnings...)
 	}
 	if w := pl.unfitted(s, est.freq); w != "" {
@@ -1100,6 +1114,11 @@ type freqHints struct {
 	// groups gives its own, and out to bound Hz.
 	loose      bool
 	off, bound float64
+	// est, freq, span and allowed are what looseFreqWarning says when
+	// loose: the windows' estimate, the frequency used, Hz, the longest
+	// group, s, and the turn the estimate allows across it, degrees.
+	est                 freqEstimate
+	freq, span, allowed float64
 }
 
 // of returns the offset where group g's ramp search starts, Hz (0 for
@@ -1117,12 +1136,56 @@ func (h freqHints) of(g string) float64 {
 // looseWarning says that the frequency the windows give, est, is too
 // uncertain for one phase across a group of span seconds at freq Hz: its
 // offset plus freqLooseSigmas of its sigma allows a turn of allowed
-// degrees. It names what to do.
-func looseWarning(est freqEstimate, freq, span, allowed float64) string {
+// degrees, and the ramp searches of the groups keys did not bound it
+// (looseFreqWarning). It names what to do; for the mains, whose frequency
+// nobody sets, no transmitter.
+func looseWarning(est freqEstimate, freq, span, allowed float64, keys []string) string {
 	dec := freqDecimals(est.sigma)
 	need := freqLooseDegrees / 360.0 / span
-	return fmt.Sprintf("the AC frequency is not known well enough to hold the phase across a group: the windows put it at %.*f ± %.*f Hz, which does not tell it from the %g Hz given, yet allows the phase to turn up to %.0f° across the longest group (%.1f s), which one current and phase per line cannot follow (the currents then read low, or as phantom go-and-return pairs); each group was searched for a phase ramp (its notes give any found; phases then compare between the conductors of a group, not between groups), and the results assume %g Hz elsewhere. Give the tone's frequency with --freq to within %.2g Hz if the transmitter's is known that well, or split the traverses into shorter groups, or raise the signal (a stronger tone, or a longer log) so that the windows fix the frequency",
-		dec, est.freq, dec, est.sigma, freq, allowed, span, freq, need)
+	advice := fmt.Sprintf("Give the tone's frequency with --freq to within %.2g Hz if the transmitter's is known that well, or split the traverses into shorter groups, or raise the signal (a stronger tone, or a longer log) so that the windows fix the frequency", need)
+	if isMains(freq) {
+		advice = "The mains' frequency wanders and cannot be given exactly: split the traverses into shorter groups, or log a stronger field, so that the windows fix it"
+	}
+	return fmt.Sprintf("the AC frequency is not known well enough to hold the phase across a group: the windows put it at %.*f ± %.*f Hz, which does not tell it from the %g Hz given, yet allows the phase to turn up to %.0f° across the longest group (%.1f s), which one current and phase per line cannot follow (the currents then read low, or as phantom go-and-return pairs); each group was searched for a phase ramp (its notes give any found; phases then compare between the conductors of a group, not between groups), and the fits of %s could not bound the turn under %d° or found a ramp the windows' estimate does not agree with; the results assume %g Hz elsewhere. %s",
+		dec, est.freq, dec, est.sigma, freq, allowed, span, keysPhrase(keys), freqLooseDegrees, freq, advice)
+}
+
+// keysPhrase lists group keys, at most eight, then "...".
+func keysPhrase(keys []string) string {
+	if len(keys) > 8 {
+		keys = append(keys[:8:8], "...")
+	}
+	return strings.Join(keys, ", ")
+}
+
+// looseFreqWarning gives looseWarning once the groups are fitted, when
+// the frequency was not known well enough for one phase per group
+// (h.loose) and some group's own ramp search does not settle it: its
+// bound on the turn (group.looseTurn) exceeds freqLooseDegrees, or the
+// ramp it kept disagrees with the windows' offset by more than three of
+// their combined sigmas. "" otherwise: each group then held its phase
+// (or took up the turn) within the limit.
+func looseFreqWarning(h freqHints, groups []*group) string {
+	if !h.loose {
+		return ""
+	}
+	var keys []string
+	for _, g := range groups {
+		if !g.loose {
+			continue
+		}
+		bad := !(g.looseTurn <= freqLooseDegrees)
+		if g.ramp != nil && math.Abs(g.ramp.hz-h.off) > 3*math.Hypot(g.ramp.sigma, h.est.sigma) {
+			bad = true
+		}
+		if bad {
+			keys = append(keys, g.key)
+		}
+	}
+	if len(keys) == 0 {
+		return ""
+	}
+	return looseWarning(h.est, h.freq, h.span, h.allowed, keys)
 }
 
 // oneWayLead starts the warning that a log walked one way seems off its
@@ -1343,65 +1406,4 @@ func (pl demodPlan) lineNear(s *ingest.Samples, res *calibrate.DemodResult, at, 
 		return 0, false
 	}
 	return lp.test(at)
-}
-
-// neighbourStep is the step, Hz, of the frequencies neighbourLine tries.
-const neighbourStep = 0.5
-
-// neighbourLine looks in the log s for a line that is not the mains
-// within the separation of windows of win seconds of freq or est (the
-// frequency given and the one the windows put the signal at), at least
-// 2 Hz from both (nearer, the signal's own change along the walk spreads
-// it): a lineProbe over 1.25 s (2.5 beats of a line 2 Hz off) tests
-// every neighbourStep, the signal taken at est, and a
-// line is one that passes lineNear's test and stands above the
-// frequencies either side. The mains lines (harmonics, folded ones, and
-// those fitted beside the signal) are left to pull. It returns the
-// strongest such line's frequency and its share of the signal; false
-// when there is none, or freq is itself a mains frequency.
-func (pl demodPlan) neighbourLine(s *ingest.Samples, res *calibrate.DemodResult, freq, est, win float64) (at, share float64, ok bool) {
-	nuis := calibrate.MainsNuisance(freq, win, pl.fs, pl.mains, nil)
-	if nuis == nil {
-		return 0, 0, false
-	}
-	sep := calibrate.NuisanceSeparation(win)
-	lo, hi := math.Min(freq, est)-sep, math.Max(freq, est)+sep
-	mainsNear := func(f float64) bool {
-		for _, n := range nuis {
-			if math.Abs(f-n) < 1 {
-				return true
-			}
-		}
-		if h, m, ok := pl.nearestMains(f); ok && math.Abs(f-h*m) < 1 {
-			return true
-		}
-		_, _, _, ok := pl.foldedMains(f, 1)
-		return ok
-	}
-	// One probe for every step, over 2.5 beats of a line 2 Hz off.
-	lp := pl.newLineProbe(s, res, est, 1.25)
-	if lp == nil {
-		return 0, 0, false
-	}
-	var fs, shares []float64
-	var seen []bool
-	for f := lo + neighbourStep; f < hi; f += neighbourStep {
-		if f <= 0 || f >= 0.45*pl.fs {
-			continue
-		}
-		sh, ok := 0.0, false
-		if math.Abs(f-freq) >= 2 && math.Abs(f-est) >= 2 && !mainsNear(f) {
-			sh, ok = lp.test(f)
-		}
-		fs, shares, seen = append(fs, f), append(shares, sh), append(seen, ok)
-	}
-	for i := range fs {
-		if !seen[i] || (i > 0 && shares[i-1] > shares[i]) || (i+1 < len(fs) && shares[i+1] > shares[i]) {
-			continue
-		}
-		if shares[i] > share {
-			at, share, ok = fs[i], shares[i], true
-		}
-	}
-	return at, share, ok
 }

@@ -154,31 +154,3 @@ func TestFoldedMainsHarmonicWarned(t *testing.T) {
 		t.Errorf("without the harmonic: %q", warns)
 	}
 }
-
-// TestSecondLineHoldsFreq: a second line that is not the mains pulls the
-// windows' frequencies as a mains harmonic does. A 5 A line at 516 Hz 3 m
-// from the exactly 512 Hz tracer put the estimate at 512.239 ± 0.003 Hz
-// (80 of its sigmas off), the run was demodulated there, and every
-// traverse read about 1 A at 0.26 m for the 8 A tracer 1 m deep, with
-// nothing said of the line (found in review). Now the line is found
-// (lineNear about the strongest window), the estimate is not acted on,
-// and the warning names it and a window that fits the two apart (0.6 s,
-// 2/window under the 3.76 Hz between the line and the estimate; at 0.6 s
-// the run reads 8.04 ± 0.20 A and 6.03 ± 0.30 A for the 8 and 6 A).
-// (TestRedemodulatedKeepsMainsWarnings checks that a tone truly off, with
-// no second line, is still demodulated at its estimate.)
-func TestSecondLineHoldsFreq(t *testing.T) {
-	site := siteBase
-	site.harmAmps, site.harmHz = 5, 516
-	_, s := simulated(t, t.TempDir(), site.scenario(512, 4096, 1))
-	res, _, warns, _, err := demodulateAC(&locateOptions{freq: 512, mains: []float64{50, 60}}, s)
-	if err != nil {
-		t.Fatal(err)
-	}
-	if res.Freq != 512 {
-		t.Errorf("demodulated at %.4f Hz, want the 512 Hz given", res.Freq)
-	}
-	if !hasWarning(warns, "second line at about 516", "not trusted", "--window 0.6") {
-		t.Errorf("no warning naming the 516 Hz line and --window 0.6: %q", warns)
-	}
-}

@@ -501,6 +501,10 @@ type group struct {
 	// from 0 as rampBound, Hz, the frequency's uncertainty, reaches.
 	loose     bool
 	rampBound float64
+	// looseTurn is, for a loose group once fitted, the turn across it,
+	// degrees, its fit still allows (looseTurnBound).
+	looseTurn float64
+	looseLog  string // the log whose frequency check set loose
 }
 
 // problem is the group's readings as an inverse problem.
@@ -520,11 +524,20 @@ func (g *group) problem(ac bool, noise float64) *inverse.Problem {
 }
 
 // survey is what runLocate has read and corrected.
+// looseLog is a log whose AC frequency was not known well enough for one
+// phase per group (freqHints.loose): warned about once its groups are
+// fitted (looseFreqWarning).
+type looseLog struct {
+	source string
+	hints  freqHints
+}
+
 type survey struct {
-	doc      *report.Document
-	groups   []*group
-	ac       bool
-	warnings []string
+	looseLogs []looseLog
+	doc       *report.Document
+	groups    []*group
+	ac        bool
+	warnings  []string
 	// jitter is, by group, what jittered stamps cost (jitterphase.go);
 	// nil when the stamps are not jittered.
 	jitter map[string]stampCost
@@ -1682,6 +1695,9 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 	if err != nil {
 		return noWindowAdvice(err, o)
 	}
+	if hints.loose {
+		sv.looseLogs = append(sv.looseLogs, looseLog{source: s.Source, hints: hints})
+	}
 	for _, w := range warns {
 		sv.warnings = append(sv.warnings, s.Source+": "+w)
 	}
@@ -1727,6 +1743,7 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 		g.hint = hints.of(w.Group)
 		g.estimated = res.Freq != o.freq
 		g.loose, g.rampBound = hints.loose, hints.bound
+		g.looseLog = s.Source
 		g.travel = append(g.travel, 2*math.Sqrt(w.Travel[0]*w.Travel[0]+w.Travel[1]*w.Travel[1]+w.Travel[2]*w.Travel[2]))
 	}
 	return nil
@@ -1909,6 +1926,9 @@ feed:
 	}
 	if err == nil {
 		dropWalkRamps(sv.groups)
+		for _, g := range sv.groups {
+			looseTurnBound(g)
+		}
 		widenForBaseNoise(sv, o.workers)
 		mendStampJitter(sv)
 	}
@@ -1969,6 +1989,17 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 			}
 		}
 		head.Warnings = append(kept, w)
+	}
+	for _, l := range sv.looseLogs {
+		var gs []*group
+		for _, g := range sv.groups {
+			if g.looseLog == l.source {
+				gs = append(gs, g)
+			}
+		}
+		if w := looseFreqWarning(l.hints, gs); w != "" {
+			head.Warnings = append(head.Warnings, l.source+": "+w)
+		}
 	}
 	fits := make([]report.Fit, len(sv.groups))
 	for i, g := range sv.groups {

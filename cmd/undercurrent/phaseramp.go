@@ -120,6 +120,39 @@ func rampStep(res *inverse.Result, ts []float64, mid float64) (a, sigma float64,
 	return num / den, res.Sigma / math.Sqrt(den), true
 }
 
+// looseTurnBound sets g.looseTurn, for a group whose frequency is not
+// known well enough for one phase (g.loose), once its fit (and ramp
+// search) is done: the turn across the group, degrees, that its fit still
+// allows at freqLooseSigmas: with a ramp kept, that of the ramp's sigma;
+// without, that of the linearised ramp (rampStep) plus its sigmas; +Inf
+// when the fit gives nothing to go by.
+func looseTurnBound(g *group) {
+	if !g.loose {
+		return
+	}
+	g.looseTurn = math.Inf(1)
+	if g.err != nil || g.res == nil || len(g.times) < 2 || len(g.times) != len(g.res.PredictedPhasors) {
+		return
+	}
+	var mid float64
+	lo, hi := g.times[0], g.times[0]
+	for _, t := range g.times {
+		mid += t
+		lo, hi = math.Min(lo, t), math.Max(hi, t)
+	}
+	mid /= float64(len(g.times))
+	span := hi - lo
+	if g.ramp != nil {
+		if g.ramp.sigma > 0 {
+			g.looseTurn = 360 * freqLooseSigmas * g.ramp.sigma * span
+		}
+		return
+	}
+	if a, sa, ok := rampStep(g.res, g.times, mid); ok {
+		g.looseTurn = 360 * (math.Abs(a) + freqLooseSigmas*sa) / (2 * math.Pi) * span
+	}
+}
+
 // fitRamp fits g (fitted already without a ramp, g.res) with a phase
 // ramp, and keeps it (g.ramp, g.res) when it pays for itself; see above.
 // The search starts at 0, or at g.hint (the offset of the group's own
