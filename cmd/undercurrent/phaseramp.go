@@ -134,14 +134,7 @@ func looseTurnBound(g *group) {
 	if g.err != nil || g.res == nil || len(g.times) < 2 || len(g.times) != len(g.res.PredictedPhasors) {
 		return
 	}
-	var mid float64
-	lo, hi := g.times[0], g.times[0]
-	for _, t := range g.times {
-		mid += t
-		lo, hi = math.Min(lo, t), math.Max(hi, t)
-	}
-	mid /= float64(len(g.times))
-	span := hi - lo
+	mid, span := timesMidSpan(g.times)
 	if g.ramp != nil {
 		if g.ramp.sigma > 0 {
 			g.looseTurn = 360 * freqLooseSigmas * g.ramp.sigma * span
@@ -151,6 +144,16 @@ func looseTurnBound(g *group) {
 	if a, sa, ok := rampStep(g.res, g.times, mid); ok {
 		g.looseTurn = 360 * (math.Abs(a) + freqLooseSigmas*sa) / (2 * math.Pi) * span
 	}
+}
+
+// timesMidSpan is the mean of times (not empty) and their span.
+func timesMidSpan(times []float64) (mid, span float64) {
+	lo, hi := times[0], times[0]
+	for _, t := range times {
+		mid += t
+		lo, hi = math.Min(lo, t), math.Max(hi, t)
+	}
+	return mid / float64(len(times)), hi - lo
 }
 
 // fitRamp fits g (fitted already without a ramp, g.res) with a phase
@@ -177,14 +180,7 @@ func fitRamp(g *group, set *inverse.Settings, noise float64) {
 		len(g.times) != len(g.phasors) || len(res.PredictedPhasors) != len(g.phasors) {
 		return
 	}
-	var mid float64
-	lo, hi := g.times[0], g.times[0]
-	for _, t := range g.times {
-		mid += t
-		lo, hi = math.Min(lo, t), math.Max(hi, t)
-	}
-	mid /= float64(len(g.times))
-	span := hi - lo
+	mid, span := timesMidSpan(g.times)
 	if !(span > 0) {
 		return
 	}
