@@ -124,14 +124,7 @@ func TestLocateRewalkInOneLog(t *testing.T) {
 // 90 s pause it is two (the several-logs rule: the same ground again more
 // than 60 s later).
 func TestRewalkSplitOnlyAfterPause(t *testing.T) {
-	dir := t.TempDir()
-	_, path := scenario(t, "single-line.toml")
-	a := filepath.Join(dir, "first.csv")
-	mustCLI(t, "simulate", "--seed", "1", path, "-o", a)
-	s, err := ingest.ReadSamples(a)
-	if err != nil {
-		t.Fatal(err)
-	}
+	s := singleLineSeed1(t)
 	t04 := rowsOf(s, inRange("T04", "T04"), nil)
 	n := t04.Len()
 	if n < 20 {

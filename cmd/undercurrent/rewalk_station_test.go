@@ -39,14 +39,7 @@ func appendRows(a, b *ingest.Samples, dt float64, g string, move func(x, y float
 // walked again on its own line, 0.3 m to the side (a GNSS position's
 // scatter) or turned 5° about its middle, is still a walk again.
 func TestRewalkNeedsSameStation(t *testing.T) {
-	dir := t.TempDir()
-	_, path := scenario(t, "single-line.toml")
-	a := filepath.Join(dir, "first.csv")
-	mustCLI(t, "simulate", "--seed", "1", path, "-o", a)
-	s, err := ingest.ReadSamples(a)
-	if err != nil {
-		t.Fatal(err)
-	}
+	s := singleLineSeed1(t)
 	t04 := rowsOf(s, inRange("T04", "T04"), nil)
 	t05 := rowsOf(s, inRange("T05", "T05"), nil)
 	n := t04.Len()
@@ -220,4 +213,18 @@ func TestLocateMislabelNotRewalk(t *testing.T) {
 	if fs := walksDifferFindings(doc); len(fs) != 0 {
 		t.Errorf("walks-differ compares T04 with the next traverse: %v", fs)
 	}
+}
+
+// singleLineSeed1 is testdata/scenarios/single-line.toml simulated with
+// seed 1 (seven traverses 4 m apart across the conductor), read back.
+func singleLineSeed1(t *testing.T) *ingest.Samples {
+	t.Helper()
+	_, path := scenario(t, "single-line.toml")
+	a := filepath.Join(t.TempDir(), "first.csv")
+	mustCLI(t, "simulate", "--seed", "1", path, "-o", a)
+	s, err := ingest.ReadSamples(a)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return s
 }
