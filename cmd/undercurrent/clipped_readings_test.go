@@ -122,19 +122,8 @@ func TestClippedReadingsLeftOut(t *testing.T) {
 					t.Errorf("clipping warning %q; want the rail 80000 nT and %d readings left out", clip, c.rows)
 				}
 			}
-			for _, g := range doc.Groups {
-				if !g.OK || len(g.Sources) == 0 {
-					t.Errorf("%s: not sound", g.Key)
-					continue
-				}
-				// Simulated truth 600 A; each fit's sigma is a few mA.
-				if cur := math.Abs(g.Sources[0].Current); math.Abs(cur-600) > 0.05 {
-					t.Errorf("%s: current %g A, truth 600 A", g.Key, cur)
-				}
-				if g.RMS > 3 {
-					t.Errorf("%s: rms %g nT, simulated noise 2 nT", g.Key, g.RMS)
-				}
-			}
+			// Simulated truth 600 A; each fit's sigma is a few mA.
+			groupsSoundAt(t, doc, 600, 0.05, 3)
 		})
 	}
 }

@@ -92,16 +92,24 @@ func TestTwoSensorPoleOneLogNoPositionScatter(t *testing.T) {
 	if len(doc.Groups) != 7 {
 		t.Fatalf("%d groups, want 7", len(doc.Groups))
 	}
+	// Simulated truth: 25 A; the fits' own sigma is about 0.005 A.
+	groupsSoundAt(t, doc, 25, 0.05, 3)
+}
+
+// groupsSoundAt checks that every group of doc is sound, its first line's
+// current within tol A of the simulated truth (A, either sign) and its
+// residual RMS at most maxRMS nT (the simulations' noise is 2 nT).
+func groupsSoundAt(t *testing.T, doc *resultDoc, truth, tol, maxRMS float64) {
+	t.Helper()
 	for _, g := range doc.Groups {
 		if !g.OK || len(g.Sources) == 0 {
 			t.Errorf("%s: not sound", g.Key)
 			continue
 		}
-		// Simulated truth: 25 A; the fits' own sigma is about 0.005 A.
-		if c := math.Abs(g.Sources[0].Current); math.Abs(c-25) > 0.05 {
-			t.Errorf("%s: current %g A, truth 25 A", g.Key, c)
+		if c := math.Abs(g.Sources[0].Current); math.Abs(c-truth) > tol {
+			t.Errorf("%s: current %g A, truth %g A", g.Key, c, truth)
 		}
-		if g.RMS > 3 {
+		if g.RMS > maxRMS {
 			t.Errorf("%s: rms %g nT, simulated noise 2 nT", g.Key, g.RMS)
 		}
 	}
