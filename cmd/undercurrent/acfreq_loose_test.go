@@ -24,19 +24,12 @@ func TestLooseFrequencyRampsEveryGroup(t *testing.T) {
 	}
 	one := site128
 	one.count = 1
-	for _, c := range []struct {
-		name       string
-		site       tracerSite
-		tone, rate float64
-		seed       int
-		freq       string
-	}{
+	for _, c := range []toneRun{
 		{"128.05Hz", one, 128.05, 1024, 9, "128"},
 		{"8000.05Hz", site8k, 8000.05, 20000, 3, "8000"},
 	} {
 		t.Run(c.name, func(t *testing.T) {
-			sc, log := simulateScenario(t, t.TempDir(), "tone", c.site.scenario(c.tone, c.rate, c.seed))
-			doc := locateDoc(t, "--freq", c.freq, "--group-by", "group", "--reference-z", "0", log)
+			sc, doc := c.locate(t)
 			// Told that the frequency is off: either not known well
 			// enough, or (when every group's ramp took the turn up and
 			// agrees with the windows) off by the groups' ramps.

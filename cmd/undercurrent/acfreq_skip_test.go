@@ -9,6 +9,24 @@ import (
 	"undercurrent/inverse/simulate"
 )
 
+// toneRun is a tracer log to simulate (site's layout, a tone of tone Hz
+// logged at rate Hz, noise seed seed) and locate with --freq freq.
+type toneRun struct {
+	name       string
+	site       tracerSite
+	tone, rate float64
+	seed       int
+	freq       string
+}
+
+// locate simulates the run's log and locates it by group, --reference-z 0,
+// returning the scenario (its truth) and the results document.
+func (c toneRun) locate(t *testing.T) (*simulate.Scenario, *resultDoc) {
+	t.Helper()
+	sc, log := simulateScenario(t, t.TempDir(), "tone", c.site.scenario(c.tone, c.rate, c.seed))
+	return sc, locateDoc(t, "--freq", c.freq, "--group-by", "group", "--reference-z", "0", log)
+}
+
 // tracerSite is a tracer survey's layout: traverses of length m walked
 // back and forth at 1 m/s with turns of turn s over a tracer cable (amps A
 // RMS at 20°, 1 m deep) and its return in a pipe (ret of its current at
@@ -135,19 +153,12 @@ func TestFreqCheckSkipsSingularWindow(t *testing.T) {
 	if testing.Short() {
 		t.Skip("simulates and locates two tracer logs")
 	}
-	for _, c := range []struct {
-		name       string
-		site       tracerSite
-		tone, rate float64
-		seed       int
-		freq       string
-	}{
+	for _, c := range []toneRun{
 		{"128Hz", site128, 128, 1024, 9, "128"},
 		{"8000.2Hz", site8k, 8000.2, 20000, 6, "8000"},
 	} {
 		t.Run(c.name, func(t *testing.T) {
-			sc, log := simulateScenario(t, t.TempDir(), "tone", c.site.scenario(c.tone, c.rate, c.seed))
-			doc := locateDoc(t, "--freq", c.freq, "--group-by", "group", "--reference-z", "0", log)
+			sc, doc := c.locate(t)
 			if w := warned(doc, "could not be checked"); w != "" {
 				t.Errorf("warning: %s", w)
 			}
