@@ -240,9 +240,14 @@ func nameReusedGroups(logs []string, all []*ingest.Samples) []string {
 			}
 		}
 	}
+	// A renamed part's distance from the first: across the first's line
+	// where it covers the same ground again (again), else between their
+	// extents.
 	type renaming struct {
 		value, name string
 		dist, gap   float64
+		again       bool
+		along       float64 // again: how far its readings' middle lies along the line from the first's, m
 	}
 	renamed := make([][]renaming, len(all))
 	holders := map[string][]int{} // the logs holding each renamed value, earliest first
@@ -295,7 +300,13 @@ func nameReusedGroups(logs []string, all []*ingest.Samples) []string {
 			}
 			if in != first {
 				d, gap := first.at.span.apart(p.span)
-				renamed[p.log] = append(renamed[p.log], renaming{value: v, name: in.name, dist: d, gap: gap})
+				again := d <= reusedApartM && sameGround(&first.at, p)
+				along := 0.0
+				if again {
+					l := runLineOf(first.at.xy)
+					d, along = math.Abs(l.across(p.xy)), math.Abs(l.middle(p.xy)-l.middle(first.at.xy))
+				}
+				renamed[p.log] = append(renamed[p.log], renaming{value: v, name: in.name, dist: d, gap: gap, again: again, along: along})
 				apart = true
 			}
 			in.at.span.addSpan(p.span)
@@ -316,7 +327,9 @@ func nameReusedGroups(logs []string, all []*ingest.Samples) []string {
 		var names []string
 		var from []string
 		fromSeen := map[int]bool{k: true}
-		minD, maxD, minG, maxG := math.Inf(1), 0.0, math.Inf(1), 0.0
+		// The distances and times of the parts elsewhere (else) and of
+		// those over the same ground again (again).
+		var elsewhere, again spread
 		// Times that are not calendar times (restarting at 0 in each
 		// log) say nothing of how far apart two logs' readings lie.
 		timed := calendar
@@ -329,11 +342,16 @@ func nameReusedGroups(logs []string, all []*ingest.Samples) []string {
 					from = append(from, logs[h])
 				}
 			}
-			minD, maxD = math.Min(minD, r.dist), math.Max(maxD, r.dist)
+			sp := &elsewhere
+			if r.again {
+				sp = &again
+			}
+			sp.add(r.value, r.dist, r.gap)
+			if r.again {
+				again.minA, again.maxA = math.Min(again.minA, r.along), math.Max(again.maxA, r.along)
+			}
 			if math.IsNaN(r.gap) {
 				timed = false
-			} else {
-				minG, maxG = math.Min(minG, r.gap), math.Max(maxG, r.gap)
 			}
 		}
 		s := all[k]
@@ -356,10 +374,6 @@ func nameReusedGroups(logs []string, all []*ingest.Samples) []string {
 			what = fmt.Sprintf("the groups %s are", listNames(names))
 			now = fmt.Sprintf("groups of their own, named %s (and so on)", to[names[0]])
 		}
-		where := fmt.Sprintf("%s apart", rangeText(minD, maxD, "m"))
-		if timed {
-			where = fmt.Sprintf("%s and %s apart", rangeText(minD, maxD, "m"), rangeText(minG, maxG, "s"))
-		}
 		keeps := "which keeps the names, its readings coming first"
 		if len(keepers) > 1 {
 			keeps = "which keep the names, their readings coming first"
@@ -370,10 +384,80 @@ func nameReusedGroups(logs []string, all []*ingest.Samples) []string {
 				keeps = "which keep the names, given first (the logs' times are not calendar times)"
 			}
 		}
-		warns = append(warns, fmt.Sprintf("%s: %s also in %s, but the readings lie %s from those of %s, %s: taken for another traverse under the same name, and fitted as %s. One group value in several logs is one group where its readings lie within %g m of each other, unless they cover the same ground again more than %g s apart (a cart's two sensors, or a traverse continued in the next file after any pause, are one group; a traverse walked again later is another); to name the groups otherwise, rename them in one of the files",
-			logs[k], what, joinAnd(from), where, joinAnd(keepers), keeps, now, reusedApartM, reusedApartS))
+		warns = append(warns, fmt.Sprintf("%s: %s also in %s, but %s, %s: taken for another traverse under the same name, and fitted as %s. One group value in several logs is one group where its readings lie within %g m of each other, unless they cover the same ground again more than %g s apart (a cart's two sensors, or a traverse continued in the next file after any pause, are one group; a traverse walked again later is another); to name the groups otherwise, rename them in one of the files",
+			logs[k], what, joinAnd(from), reusedWhere(elsewhere, again, timed, joinAnd(keepers)), keeps, now, reusedApartM, reusedApartS))
 	}
 	return warns
+}
+
+// spread gathers the group values of renamed parts with the range of
+// their distances, m, and times apart, s, and for parts over the same
+// ground again the range of the distances along the line between the
+// middles of their readings, m.
+type spread struct {
+	values                 []string
+	minD, maxD, minG, maxG float64
+	minA, maxA             float64
+}
+
+func (s *spread) add(v string, d, gap float64) {
+	if len(s.values) == 0 {
+		s.minD, s.maxD, s.minG, s.maxG = math.Inf(1), math.Inf(-1), math.Inf(1), math.Inf(-1)
+		s.minA, s.maxA = math.Inf(1), math.Inf(-1)
+	}
+	s.values = append(s.values, v)
+	s.minD, s.maxD = math.Min(s.minD, d), math.Max(s.maxD, d)
+	if !math.IsNaN(gap) {
+		s.minG, s.maxG = math.Min(s.minG, gap), math.Max(s.maxG, gap)
+	}
+}
+
+// reusedWhere words where the renamed parts of a log lie from those of
+// the logs keepers (times given when timed): the ones
+// elsewhere by the distance between the extents of their readings, and
+// the ones over the same ground again (again) by their distance across
+// the earlier readings' line, to the centimetre, and, when it is 0.1 m
+// or more, the distance between the middles of the two sets of readings
+// along it (a position offset along the traverses, which moves the
+// fitted conductor across itself). Two logs of the same traverses walked
+// again 0.5 m along the conductor had been said to "lie 0 m apart", the
+// distance between their overlapping extents (found in review).
+func reusedWhere(elsewhere, again spread, timed bool, keepers string) string {
+	cm := func(v float64) float64 { return math.Round(v*100) / 100 }
+	var parts []string
+	if len(elsewhere.values) > 0 {
+		w := "lie " + rangeText(elsewhere.minD, elsewhere.maxD, "m")
+		if timed {
+			w += " and " + rangeText(elsewhere.minG, elsewhere.maxG, "s")
+		}
+		w += " apart from those of " + keepers
+		parts = append(parts, w)
+	}
+	if len(again.values) > 0 {
+		w := "cover the same ground again"
+		if timed {
+			w += " " + rangeText(again.minG, again.maxG, "s") + " later"
+		}
+		w += ", " + rangeText(cm(again.minD), cm(again.maxD), "m") + " across"
+		if cm(again.maxA) >= 0.1 {
+			w += " and " + rangeText(cm(again.minA), cm(again.maxA), "m") + " along (between their middles)"
+		}
+		w += " the lines of those of " + keepers
+		parts = append(parts, w)
+	}
+	if len(parts) == 1 {
+		return "the readings " + parts[0]
+	}
+	// Some elsewhere, some over the same ground: each set named.
+	return fmt.Sprintf("the readings of %s %s, and those of %s %s", listNames1(elsewhere.values), parts[0], listNames1(again.values), parts[1])
+}
+
+// listNames1 is listNames for one name or more.
+func listNames1(names []string) string {
+	if len(names) == 1 {
+		return names[0]
+	}
+	return listNames(names)
 }
 
 // joinAnd joins names as "a", "a and b", "a, b and c".
@@ -394,11 +478,19 @@ func listNames(names []string) string {
 	return strings.Join(names[:most], ", ") + fmt.Sprintf(" and %d more", len(names)-most)
 }
 
-// rangeText words a range of separations: "140 m", or "138-142 m".
+// rangeText words a range of separations: "140 m", or "138-142 m"; a
+// time, s, of two minutes or more in minutes, of two hours or more in
+// hours and of two days or more in days (a day had read "1.44e+03 min").
 func rangeText(lo, hi float64, unit string) string {
 	f := func(v float64) string { return fmt.Sprintf("%.3g", v) }
 	if unit == "s" && lo >= 120 {
 		unit, lo, hi = "min", lo/60, hi/60
+	}
+	if unit == "min" && lo >= 120 {
+		unit, lo, hi = "h", lo/60, hi/60
+	}
+	if unit == "h" && lo >= 48 {
+		unit, lo, hi = "days", lo/24, hi/24
 	}
 	if f(lo) == f(hi) {
 		return f(lo) + " " + unit

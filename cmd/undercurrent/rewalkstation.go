@@ -87,6 +87,20 @@ func (l runLine) across(xy [][2]float64) float64 {
 	return d[len(d)/2]
 }
 
+// middle returns the middle, m along l from its centre, of the extent
+// of the plan positions xy along the line l; NaN without positions.
+func (l runLine) middle(xy [][2]float64) float64 {
+	if len(xy) == 0 {
+		return math.NaN()
+	}
+	lo, hi := math.Inf(1), math.Inf(-1)
+	for _, q := range xy {
+		u := (q[0]-l.cx)*l.ux + (q[1]-l.cy)*l.uy
+		lo, hi = math.Min(lo, u), math.Max(hi, u)
+	}
+	return 0.5 * (lo + hi)
+}
+
 // rewalkStation tells whether the run p of the group value v of the log s
 // lies at the station of the walk w (whose readings are first): within
 // the limit across w's line (see above). It returns whether it does, the

@@ -42,18 +42,86 @@ import (
 const repeatFrac = 0.1
 
 // repeatSpacing is the route's station spacing for telling repeats: the
-// median of the chainage intervals between successive usable stations of
-// ps (route order) that are longer than a tenth of their mean, so that
-// the intervals of no length between repeats (half of them on a route
-// walked twice) do not set it; zero with fewer than two usable stations.
+// median of the intervals between successive usable stations of ps
+// (route order), measured along the conductor (alongApart), that are
+// longer than a tenth of their mean, so that the intervals of no length
+// between repeats (half of them on a route walked twice) do not set it;
+// zero with fewer than two usable stations.
 func repeatSpacing(ps []Placed) float64 {
-	var c []float64
+	var d []float64
+	prev := -1
 	for k := range ps {
-		if ps[k].usable() {
-			c = append(c, ps[k].Chainage)
+		if !ps[k].usable() {
+			continue
 		}
+		if prev >= 0 {
+			d = append(d, alongApart(&ps[prev], &ps[k]))
+		}
+		prev = k
 	}
-	return spacingOf(c)
+	return spacingOfIntervals(d)
+}
+
+// Repeats beside each other.
+//
+// A later walk whose positions are off the first's along the traverses
+// (across the conductor: an uncorrected GNSS offset between days) puts
+// each station's repeat that far across the route from it, its fitted
+// line moved across itself by the offset. Chained point to point, the
+// 0.6 m between a station and its repeat on single-line.toml walked again
+// 0.6 m along its traverses were half the chainage intervals, so their
+// median was read as the spacing, no stations were repeats, and the
+// route's end station took its direction from the tangent to its repeat,
+// across the conductor: T07 read -25 A beside +25 A, a false "current
+// falls by 52.2 A" (found in review). Two crossings of one conductor at
+// one station differ along the route by no more than the walks' stations
+// do, whatever the offset across it: stations are now told apart by
+// their distance along their fitted direction (alongApart), when the two
+// directions agree within repeatTurnDeg and the stations lie within
+// repeatAcrossM across it; otherwise by their chainage, as before.
+const (
+	// repeatTurnDeg: the most, degrees, two stations' directions may
+	// differ and their distance be taken along them (two walks of one
+	// traverse fit one direction within a degree or so; the legs either
+	// side of a bend or a branch at a tee differ more).
+	repeatTurnDeg = 10.0
+	// repeatAcrossM: the most, m, two stations may lie across their
+	// direction and their distance be taken along it (an uncorrected GNSS
+	// offset between days is commonly 0.5-2 m; from memory of field
+	// practice).
+	repeatAcrossM = 2.5
+)
+
+// alongApart returns the distance, m, between the stations a and b of a
+// route along the conductor: the component along their mean horizontal
+// direction of the chord between their points, when both are sound (OK),
+// their directions agree within repeatTurnDeg and they lie within
+// repeatAcrossM across it; otherwise the difference of their chainages.
+func alongApart(a, b *Placed) float64 {
+	ch := math.Abs(b.Chainage - a.Chainage)
+	if !a.OK || !b.OK {
+		return ch
+	}
+	ua, okA := horizUnit(a.Dir)
+	ub, okB := horizUnit(b.Dir)
+	if !okA || !okB {
+		return ch
+	}
+	dot := ua[0]*ub[0] + ua[1]*ub[1]
+	if dot < 0 {
+		ub, dot = [2]float64{-ub[0], -ub[1]}, -dot
+	}
+	if dot < math.Cos(repeatTurnDeg*math.Pi/180) {
+		return ch
+	}
+	u := [2]float64{ua[0] + ub[0], ua[1] + ub[1]}
+	n := math.Hypot(u[0], u[1])
+	u = [2]float64{u[0] / n, u[1] / n}
+	dx, dy := b.Point[0]-a.Point[0], b.Point[1]-a.Point[1]
+	if math.Abs(-dx*u[1]+dy*u[0]) > repeatAcrossM {
+		return ch
+	}
+	return math.Abs(dx*u[0] + dy*u[1])
 }
 
 // RepeatGapAlong is the chainage within which stations are repeats of one
@@ -69,6 +137,12 @@ func spacingOf(c []float64) float64 {
 	for k := 1; k < len(c); k++ {
 		d = append(d, c[k]-c[k-1])
 	}
+	return spacingOfIntervals(d)
+}
+
+// spacingOfIntervals is the median of the intervals d, m, longer than a
+// tenth of their mean; zero without any.
+func spacingOfIntervals(d []float64) float64 {
 	if len(d) == 0 {
 		return 0
 	}
@@ -133,39 +207,46 @@ func walkOrder(ps []Placed, gap float64) bool {
 }
 
 // measureRuns sets the chainage of ps (route order) with each run of
-// repeats, ps[r[0]:r[1]] for r in runs, taken as one point: the mean of
-// its sound (OK) stations' points (of all its stations when none is
-// sound), chained as measure chains stations; every station of a run
-// takes its run's chainage. Chained station by station in walk order,
+// repeats, ps[r[0]:r[1]] for r in runs (each in walk order), taken as
+// one point: its first sound (OK) station's, the earliest walk's (the
+// mean of all its stations' points when none is sound), chained as
+// measure chains stations; every station of a run takes its run's
+// chainage. Chained station by station in walk order,
 // a later walk whose positions sit behind the first's (a GNSS offset
 // between days: 0.5 m on a 20 m spacing) went back and forth at every
 // station, adding twice the offset each time: Kestrel Moor walked again
 // was 420 m long rather than 400 m and its defect placed 14 m past where
 // it is (found in review). A later walk beside the first's (across the
 // route) likewise zigzagged. Repeats now add no length, and chainage 0
-// is still at the first walk's traverse, listed first. A route with no
-// repeats has one station a run and is measured as before.
+// is still at the first walk's traverse, listed first. The mean of a
+// run's sound points had stood for the run, which jogged across the
+// route where a walk beside the first (a GNSS offset between days)
+// began or ended: 0.12 m more per jog with the later walk 2 m across on a
+// 4 m spacing. A run's first walk's point keeps the chords on one walk
+// wherever it is sound. A route with no repeats has one station a run
+// and is measured as before.
 func measureRuns(ps []Placed, runs [][2]int) {
 	nodes := make([]Placed, len(runs))
 	for n, r := range runs {
-		ok := false
-		for k := r[0]; k < r[1]; k++ {
-			ok = ok || ps[k].OK
+		first := -1
+		for k := r[0]; k < r[1] && first < 0; k++ {
+			if ps[k].OK {
+				first = k
+			}
+		}
+		if first >= 0 {
+			nodes[n].Point, nodes[n].OK = ps[first].Point, true
+			continue
 		}
 		var pt [3]float64
-		cnt := 0
 		for k := r[0]; k < r[1]; k++ {
-			if ps[k].OK == ok {
-				for a := range pt {
-					pt[a] += ps[k].Point[a]
-				}
-				cnt++
+			for a := range pt {
+				pt[a] += ps[k].Point[a]
 			}
 		}
 		for a := range pt {
-			nodes[n].Point[a] = pt[a] / float64(cnt)
+			nodes[n].Point[a] = pt[a] / float64(r[1]-r[0])
 		}
-		nodes[n].OK = ok
 	}
 	measure(nodes)
 	for n, r := range runs {
@@ -293,13 +374,13 @@ func alsoText(also []string) string {
 }
 
 // repeatRuns calls visit for each run of successive stations of ps (route
-// order) less than gap apart along the route from the run's first, ps[i:j],
+// order) less than gap apart along the route (alongApart) from the run's first, ps[i:j],
 // with its usable stations: the repeats of one station when there are two
 // or more (combineRepeats, repeatSets).
 func repeatRuns(ps []Placed, gap float64, visit func(i, j int, use []*Placed)) {
 	for i := 0; i < len(ps); {
 		j := i + 1
-		for j < len(ps) && ps[j].Chainage-ps[i].Chainage < gap {
+		for j < len(ps) && alongApart(&ps[i], &ps[j]) < gap {
 			j++
 		}
 		var use []*Placed

@@ -463,14 +463,15 @@ func orient(ps []Placed, gap float64) {
 // failed station's point is the centroid of its readings and says nothing
 // of where the conductor runs (see chain). With fewer than two sound
 // stations they are k's immediate neighbours. Stations less than gap
-// from k along the route (its repeats, a walk of the same traverse again)
+// from k along the route (alongApart: its repeats, a walk of the same
+// traverse again, however far across the route within repeatAcrossM)
 // are passed over: their points lie millimetres from k's, and the tangent
 // to them is noise (see repeats.go); a route of repeats alone keeps them.
 func neighbours(ps []Placed, k int, gap float64) (a, b int) {
 	n := len(ps)
 	var g []int
 	for i := range ps {
-		if ps[i].OK && (i == k || math.Abs(ps[i].Chainage-ps[k].Chainage) >= gap) {
+		if ps[i].OK && (i == k || alongApart(&ps[i], &ps[k]) >= gap) {
 			g = append(g, i)
 		}
 	}
