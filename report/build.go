@@ -315,9 +315,12 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 			}
 		}
 		// Conductor 1 by continuity where a stronger line crosses it,
-		// then by position where the currents do not pick it (lead.go).
+		// then by position where the currents do not pick it (lead.go),
+		// then on one track where a parallel line becomes the stronger
+		// (leadswap.go).
 		leadByContinuity(fits, ac)
 		leadByPosition(fits, ac)
+		leadBySwap(fits, ac)
 		// The strongest line's partner core, the same along the route
 		// (partner.go).
 		choosePartners(fits, ac)

@@ -1,0 +1,300 @@
+package report
+
+import (
+	"math"
+	"sort"
+
+	"undercurrent/inverse"
+)
+
+// Conductor 1 where a parallel cable becomes the stronger.
+//
+// A fault that leaves a conductor carrying less than a cable laid beside
+// it (a 25 A feeder losing 13 A, an 18 A supply 3 m away the whole way)
+// makes the cable the strongest line of every traverse past the fault.
+// leadByContinuity keeps conductor 1 on its track only where the
+// strongest line runs off the neighbours' direction or carries far more
+// than they do, and where half the six nearest traverses lie past the
+// fault their conductor 1 is the cable too: conductor 1 moved onto the
+// cable there, the route kinked 3 m sideways, the loss was read as the
+// feeder's current before it less the cable's after it (7 A for 13 A),
+// and both the cable and the feeder were said to end at the fault (found
+// in review; with the fault between the last two traverses, the last
+// station was the cable and the step 8.0 ± 1.5 A).
+//
+// leadBySwap therefore follows one track. The groups' conductor 1 lines
+// are joined into tracks (the lines agree within crossAngle in plan and
+// one passes within continuityReach of the other carried on); the track
+// with the most groups is the route's, on a tie the one carrying the
+// larger current at some traverse (the conductor whose current changes;
+// the cable beside it carries the same the whole way). A group on another
+// track takes as conductor 1 its line on the route's track when the
+// nearest group already on it (by the readings' centres) shows the lead
+// changed between two parallel lines that both run on: the two groups'
+// conductor 1 lines are parallel (swapParallel) and apart (over
+// continuityReach), this group has a line parallel to the other's
+// conductor 1 on its track, with a current within a factor
+// continuityLevel of it or of this group's own conductor 1 (a fault may
+// take most of the current: 20 A of 25 A beside an 18 A cable) flowing
+// the same way, and the other group has a line on this one's conductor 1
+// track likewise. A bend of the route is not a swap (its lines are not
+// parallel), nor is a conductor that ends or a service that runs beside
+// the route for a few traverses only (the other line is missing on one
+// side). Where the fault lies in the first part of the route the cable is
+// the stronger at most traverses and is conductor 1 throughout, the
+// feeder a further conductor with its loss (its own current findings).
+// Run after leadByContinuity and leadByPosition.
+
+// swapParallel is the angle in plan, degrees, within which the lines of
+// two traverses are taken as parallel, widened by three times their
+// azimuths' combined sigma. A route bending by more between two traverses
+// shifts its line sideways rather than swapping it for another; under it,
+// the shift over the traverses' spacing stays under continuityReach up to
+// about 38 m apart.
+const swapParallel = 3.0
+
+// swapLine is a usable line of a fit, as leadBySwap compares it.
+type swapLine struct {
+	ok          bool
+	plan        [2]float64
+	cur, signed float64
+	azSigma     float64
+	point, dir3 [3]float64
+}
+
+func swapLineOf(s *inverse.SourceEstimate, ac bool) swapLine {
+	if s.Kind == KindDipole || !sound(s) || NoCurrent(s, ac) || !s.Identifiable.Azimuth {
+		return swapLine{}
+	}
+	v, ok := planUnit(s.Dir)
+	if !ok {
+		return swapLine{}
+	}
+	sa := s.AzimuthSigma
+	if !finite(sa) || sa < 0 {
+		sa = 0
+	}
+	return swapLine{ok: true, plan: v, cur: math.Abs(s.Current), signed: s.Current, azSigma: sa, point: s.Point, dir3: s.Dir}
+}
+
+// parallelTo reports whether a and b run within swapParallel degrees
+// (plus three combined sigmas) of each other in plan, either sense.
+func (a swapLine) parallelTo(b swapLine) bool {
+	tol := swapParallel + 3*math.Hypot(a.azSigma, b.azSigma)
+	if tol >= 90 {
+		return true
+	}
+	return math.Abs(a.plan[0]*b.plan[0]+a.plan[1]*b.plan[1]) >= math.Cos(tol*math.Pi/180)
+}
+
+// carries reports whether line m continues line l: parallel to it, on its
+// track (within continuityReach of it carried on), with a current within
+// a factor continuityLevel of l's or of o's (the conductor 1 of m's own
+// group: a fault may take most of a conductor's current, but a line
+// weaker than a quarter of either is no conductor of the two), flowing
+// the same way as l (DC; an AC current is an RMS, its sense in the
+// phase, not asked).
+func (m swapLine) carries(l, o swapLine, ac bool) bool {
+	if !m.ok || !l.ok || !m.parallelTo(l) || pointToLine(m.point, l.point, l.dir3) > continuityReach {
+		return false
+	}
+	level := func(c float64) bool { return m.cur*continuityLevel >= c && m.cur <= continuityLevel*c }
+	if !level(l.cur) && !(o.ok && level(o.cur)) {
+		return false
+	}
+	if ac {
+		return true
+	}
+	way := m.signed
+	if m.plan[0]*l.plan[0]+m.plan[1]*l.plan[1] < 0 {
+		way = -way
+	}
+	return way*l.signed > 0
+}
+
+// swapFree reports whether f's lines may be reordered here: a usable fit
+// whose first line is no pair's, split's or object's.
+func swapFree(f *Fit) bool {
+	r := f.Result
+	if r == nil || f.Dipole || f.object != nil || f.sumSplit || f.crossPairs != nil || len(r.Sources) < 2 ||
+		!(r.Status.Converged() || r.Status == inverse.Stalled) || len(r.Opposed) > 0 || len(r.SameWay) > 0 {
+		return false
+	}
+	for _, p := range r.Pairs {
+		if p.Lines[0] == 0 || p.Lines[1] == 0 {
+			return false
+		}
+	}
+	return true
+}
+
+// otherOn is the index of the further line of f that continues line l
+// (carries; o is f's conductor 1), the nearest to it; -1 when none does.
+func otherOn(f *Fit, l, o swapLine, ac bool) int {
+	r := f.Result
+	inPair := map[int]bool{}
+	for _, p := range r.Pairs {
+		inPair[p.Lines[0]], inPair[p.Lines[1]] = true, true
+	}
+	pick, best := -1, math.Inf(1)
+	for j := 1; j < len(r.Sources); j++ {
+		if inPair[j] {
+			continue
+		}
+		m := swapLineOf(&r.Sources[j], ac)
+		if !m.carries(l, o, ac) {
+			continue
+		}
+		if d := pointToLine(m.point, l.point, l.dir3); d < best {
+			pick, best = j, d
+		}
+	}
+	return pick
+}
+
+// leadBySwap keeps conductor 1 on one of two parallel lines where the
+// other becomes the stronger (see above), replacing such a fit's Result
+// by a copy with the chosen line first. fits is changed in place: the
+// caller passes its own copy.
+func leadBySwap(fits []Fit, ac bool) {
+	n := len(fits)
+	if n < 3 {
+		return
+	}
+	leads := make([]swapLine, n)
+	cent := make([][3]float64, n)
+	var used []int
+	for i := range fits {
+		f := &fits[i]
+		r := f.Result
+		if r == nil || len(r.Sources) == 0 || f.Dipole || f.Problem == nil || len(f.Problem.Points) == 0 ||
+			!(r.Status.Converged() || r.Status == inverse.Stalled) {
+			continue
+		}
+		if leads[i] = swapLineOf(&r.Sources[0], ac); leads[i].ok {
+			cent[i] = centroid(f.Problem.Points)
+			used = append(used, i)
+		}
+	}
+	if len(used) < 3 {
+		return
+	}
+	// The tracks: conductor 1 lines joined where they agree in plan and
+	// one lies on the other carried on.
+	root := make([]int, n)
+	for i := range root {
+		root[i] = i
+	}
+	var find func(int) int
+	find = func(i int) int {
+		for root[i] != i {
+			root[i] = root[root[i]]
+			i = root[i]
+		}
+		return i
+	}
+	for x, a := range used {
+		for _, b := range used[x+1:] {
+			la, lb := leads[a], leads[b]
+			if !planAgree(la.plan, lb.plan) {
+				continue
+			}
+			if pointToLine(lb.point, la.point, la.dir3) <= continuityReach || pointToLine(la.point, lb.point, lb.dir3) <= continuityReach {
+				root[find(a)] = find(b)
+			}
+		}
+	}
+	type track struct {
+		groups int
+		peak   float64
+		first  int
+	}
+	tracks := map[int]*track{}
+	for _, i := range used {
+		k := find(i)
+		t := tracks[k]
+		if t == nil {
+			t = &track{first: i}
+			tracks[k] = t
+		}
+		t.groups++
+		t.peak = math.Max(t.peak, leads[i].cur)
+	}
+	if len(tracks) < 2 {
+		return
+	}
+	keys := make([]int, 0, len(tracks))
+	for k := range tracks {
+		keys = append(keys, k)
+	}
+	sort.Slice(keys, func(x, y int) bool {
+		a, b := tracks[keys[x]], tracks[keys[y]]
+		if a.groups != b.groups {
+			return a.groups > b.groups
+		}
+		if a.peak != b.peak {
+			return a.peak > b.peak
+		}
+		return a.first < b.first
+	})
+	main := keys[0]
+	planDist := func(a, b int) float64 {
+		return math.Hypot(cent[a][0]-cent[b][0], cent[a][1]-cent[b][1])
+	}
+	// Each open group's nearest group on the route's track, kept up to
+	// date as groups join it.
+	onMain := make([]bool, n)
+	open := map[int]bool{}
+	near := make([]int, n)
+	nearD := make([]float64, n)
+	for _, i := range used {
+		if find(i) == main {
+			onMain[i] = true
+		} else {
+			open[i] = true
+			near[i], nearD[i] = -1, math.Inf(1)
+		}
+	}
+	join := func(m int) {
+		for _, g := range used {
+			if open[g] {
+				if d := planDist(g, m); d < nearD[g] || d == nearD[g] && m < near[g] {
+					near[g], nearD[g] = m, d
+				}
+			}
+		}
+	}
+	for _, i := range used {
+		if onMain[i] {
+			join(i)
+		}
+	}
+	for len(open) > 0 {
+		// The open group nearest one on the route's track, and that one.
+		gi, best := -1, math.Inf(1)
+		for _, g := range used {
+			if open[g] && nearD[g] < best {
+				gi, best = g, nearD[g]
+			}
+		}
+		if gi < 0 {
+			return
+		}
+		ai := near[gi]
+		delete(open, gi)
+		g, a := &fits[gi], &fits[ai]
+		lg, la := leads[gi], leads[ai]
+		if !swapFree(g) || !lg.parallelTo(la) ||
+			pointToLine(lg.point, la.point, la.dir3) <= continuityReach {
+			continue
+		}
+		pick := otherOn(g, la, lg, ac)
+		if pick < 0 || otherOn(a, lg, la, ac) < 0 {
+			continue
+		}
+		g.Result = withLead(g.Result, pick)
+		leads[gi] = swapLineOf(&g.Result.Sources[0], ac)
+		onMain[gi] = true
+		join(gi)
+	}
+}
