@@ -1098,7 +1098,7 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 	again.Warnings = appendNonEmpty(again.Warnings, failedShare)
 	warn := fmt.Sprintf("AC frequency estimated at %.*f ± %.*f Hz from %d windows, not the %g Hz given (at %g Hz the phase would turn %.0f° across the longest group, %.1f s, and the currents would read low); demodulated at %.*f Hz in %.4g s windows; the estimate's own uncertainty turns the phase by 360·σ·t, so phases compare between the conductors of a group, not between groups",
 		dec, est.freq, dec, est.sigma, est.windows, o.freq, o.freq, turn, span, dec, est.freq, win2)
-	return again, win2, append([]string{warn}, again.Warnings...), freqHints{groups: wanderHints(fit.Windows, est.freq, win2), bound: rampEstimateSigmas * est.sigma}, nil
+	return again, win2, append([]string{warn}, again.Warnings...), freqHints{groups: wanderHints(fit.Windows, est.freq, win2), bound: rampEstimateSigmas * est.sigma, estSigma: est.sigma}, nil
 }
 
 // rampEstimateSigmas is how many of the estimate's sigmas from 0 the ramp
@@ -1124,9 +1124,11 @@ type freqHints struct {
 	// from off (the log's estimate less the frequency used, Hz) unless
 	// groups gives its own, and out to bound Hz. When the log was
 	// demodulated at its estimate, bound is rampEstimateSigmas of the
-	// estimate's sigma: the ramp search reaches that far too.
+	// estimate's sigma: the ramp search reaches that far too, and
+	// estSigma is the estimate's sigma, Hz.
 	loose      bool
 	off, bound float64
+	estSigma   float64
 	// est, freq, span and allowed are what looseFreqWarning says when
 	// loose: the windows' estimate, the frequency used, Hz, the longest
 	// group, s, and the turn the estimate allows across it, degrees.

@@ -485,7 +485,15 @@ func wanderWarning(sv *survey) string {
 	if off, sigma, estimated, ok := steadyRamps(sv.groups); ok && n >= 2 {
 		dec := freqDecimals(sigma)
 		why := ""
-		if estimated {
+		if est := estimateSigma(sv.groups); estimated && math.Abs(off) <= estimateWithinSigmas*est {
+			// Within the estimate's own uncertainty: the windows' noise,
+			// not a bias. Before, the bias was named whatever the offset
+			// (a single cable on 32 s traverses at 60 nT of noise, whose
+			// estimate was off by 1.5 of its sigma, was said to be off
+			// through "the walk over conductors of different phase, or the
+			// signal's harmonics"; found in review).
+			why = fmt.Sprintf(", so the frequency estimated from single windows was off by %s Hz, within its own uncertainty (± %.*f Hz): windows of a fraction of a second each fix the frequency far less closely than the lines' fit across a whole group", plusMinusHz(-off, sigma), freqDecimals(est), est)
+		} else if estimated {
 			why = fmt.Sprintf(", so the frequency estimated from single windows was off by %s Hz (the walk over conductors of different phase, or the signal's harmonics, can bias single windows beyond their sigmas; the lines' fits hold the phase changing along a traverse)", plusMinusHz(-off, sigma))
 		}
 		return fmt.Sprintf("in %d group(s) the AC frequency differs from the %.4f Hz demodulated at by the same %s Hz (their phase ramps agree): the field ran steadily at %.*f ± %.*f Hz%s; each of those groups was fitted with a phase ramp, its frequency offset in the group's notes (%s)",
@@ -493,6 +501,23 @@ func wanderWarning(sv *survey) string {
 	}
 	return fmt.Sprintf("in %d group(s) the AC frequency differs from the %.4f Hz demodulated at (by up to %+.4f Hz): the frequency was off or wandered during the survey; each of those groups was fitted with a phase ramp, its frequency offset in the group's notes (%s)",
 		n, f, worst, strings.Join(keys, ", "))
+}
+
+// estimateWithinSigmas is how many of its own sigmas a frequency
+// estimated from the windows may be off the groups' ramps for the
+// difference to be put down to its noise (wanderWarning).
+const estimateWithinSigmas = 3
+
+// estimateSigma is the largest sigma of the frequencies estimated from the
+// windows at which groups were demodulated, Hz (0 for none).
+func estimateSigma(groups []*group) float64 {
+	var s float64
+	for _, g := range groups {
+		if g.estimated {
+			s = math.Max(s, g.estSigma)
+		}
+	}
+	return s
 }
 
 // steadyRamps reports whether every AC group that could take a ramp (a fit
