@@ -1098,8 +1098,19 @@ func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, 
 	again.Warnings = appendNonEmpty(again.Warnings, failedShare)
 	warn := fmt.Sprintf("AC frequency estimated at %.*f ± %.*f Hz from %d windows, not the %g Hz given (at %g Hz the phase would turn %.0f° across the longest group, %.1f s, and the currents would read low); demodulated at %.*f Hz in %.4g s windows; the estimate's own uncertainty turns the phase by 360·σ·t, so phases compare between the conductors of a group, not between groups",
 		dec, est.freq, dec, est.sigma, est.windows, o.freq, o.freq, turn, span, dec, est.freq, win2)
-	return again, win2, append([]string{warn}, again.Warnings...), freqHints{groups: wanderHints(fit.Windows, est.freq, win2)}, nil
+	return again, win2, append([]string{warn}, again.Warnings...), freqHints{groups: wanderHints(fit.Windows, est.freq, win2), bound: rampEstimateSigmas * est.sigma, estSigma: est.sigma}, nil
 }
+
+// rampEstimateSigmas is how many of the estimate's sigmas from 0 the ramp
+// search of a group demodulated at a frequency estimated from the log may
+// reach (freqHints.bound), where that is beyond its other bounds
+// (rampSearch): the estimate is off the field by about its sigma, and a
+// weak field's windows give sigmas of hundredths of a hertz. Before, the
+// search stopped at 0.02 Hz, and on 32 s traverses over a 200 nT cable at
+// 90 nT of reading noise demodulated 0.027-0.035 Hz off, every group kept
+// a ramp at that bound, its frequency 10-31 of its sigmas off the
+// simulated truth (found in review).
+const rampEstimateSigmas = 4
 
 // freqHints is what demodulateAC tells the groups' fits about the
 // frequency: where each group's phase-ramp search starts (fitRamp).
@@ -1111,9 +1122,13 @@ type freqHints struct {
 	// one phase across a group (freqLooseDegrees): every group then has its
 	// phase ramp searched for, as one demodulated at an estimate, starting
 	// from off (the log's estimate less the frequency used, Hz) unless
-	// groups gives its own, and out to bound Hz.
+	// groups gives its own, and out to bound Hz. When the log was
+	// demodulated at its estimate, bound is rampEstimateSigmas of the
+	// estimate's sigma: the ramp search reaches that far too, and
+	// estSigma is the estimate's sigma, Hz.
 	loose      bool
 	off, bound float64
+	estSigma   float64
 	// est, freq, span and allowed are what looseFreqWarning says when
 	// loose: the windows' estimate, the frequency used, Hz, the longest
 	// group, s, and the turn the estimate allows across it, degrees.

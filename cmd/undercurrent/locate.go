@@ -494,7 +494,9 @@ type group struct {
 	// estimated is set (AC) when the group was demodulated at a frequency
 	// estimated from the log, not the one given: off by about the
 	// estimate's sigma, so the ramp is always searched for (fitRamp).
+	// estSigma is then that sigma, Hz.
 	estimated bool
+	estSigma  float64
 	// loose is set (AC) when the frequency used is not known well enough
 	// to hold one phase across a group (freqHints.loose): the ramp is then
 	// searched for as in a group demodulated at an estimate, and as far
@@ -1742,6 +1744,9 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 		}
 		g.hint = hints.of(w.Group)
 		g.estimated = res.Freq != o.freq
+		if g.estimated {
+			g.estSigma = hints.estSigma
+		}
 		g.loose, g.rampBound = hints.loose, hints.bound
 		g.looseLog = s.Source
 		g.travel = append(g.travel, 2*math.Sqrt(w.Travel[0]*w.Travel[0]+w.Travel[1]*w.Travel[1]+w.Travel[2]*w.Travel[2]))
