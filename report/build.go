@@ -206,7 +206,8 @@ type BuildSettings struct {
 // AC ones (Phasors); results whose depths are measured from different
 // references (Result.DepthReference, or ReferenceZ heights more than a
 // micrometre apart); or a MinCover with depths below the sensors and no
-// SensorHeight.
+// SensorHeight. A setting that is NaN or infinite, or negative where only
+// zero or more has a meaning, is refused too, naming the field.
 func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 	if len(fits) == 0 {
 		return nil, errors.New("report: no fits to report")

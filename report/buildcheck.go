@@ -16,6 +16,9 @@ const refZTolerance = 1e-6
 // a minimum cover to check with no way to know where the ground is. Fits
 // with no Problem are left to Build's own check.
 func checkFits(fits []Fit, bs *BuildSettings) error {
+	if err := bs.check(); err != nil {
+		return err
+	}
 	if err := checkKeys(fits); err != nil {
 		return err
 	}
@@ -28,6 +31,36 @@ func checkFits(fits []Fit, bs *BuildSettings) error {
 	}
 	if bs != nil && bs.MinCover > 0 && !below && !(bs.SensorHeight > 0) {
 		return fmt.Errorf("report: MinCover %g m needs to know where the ground is: the fits' depths are below the sensors and BuildSettings.SensorHeight is 0 (unknown); give SensorHeight (the sensors' height above ground) or fit with inverse.Settings.ReferenceZ (the ground's height)", bs.MinCover)
+	}
+	return nil
+}
+
+// check refuses settings outside the ranges their documentation gives: a
+// NaN or infinite value, or a negative one where only zero or more has a
+// meaning. Before, Build took them: a NaN or infinite StepK dropped a 7 A
+// earth fault without a word, a NaN MinCover or GroundSigma called every
+// group's cover shallow, and only WriteJSON refused the NaN later.
+func (bs *BuildSettings) check() error {
+	if bs == nil {
+		return nil
+	}
+	for _, f := range []struct {
+		name     string
+		v        float64
+		positive bool // zero or more
+		want     string
+	}{
+		{"SensorHeight", bs.SensorHeight, true, "a height in metres, 0 when not known"},
+		{"MinCover", bs.MinCover, true, "a depth in metres, 0 for no check"},
+		{"GroundSigma", bs.GroundSigma, true, "a length in metres"},
+		{"StepK", bs.StepK, true, "a number of standard deviations, 0 for 3"},
+		{"MinStep", bs.MinStep, false, "a fraction of the current, 0 for 0.02"},
+		{"Noise", bs.Noise, true, "a noise in nT, 0 when the fits estimated it"},
+		{"MeasuredNoise", bs.MeasuredNoise, true, "a noise in nT, 0 when not measured"},
+	} {
+		if math.IsNaN(f.v) || math.IsInf(f.v, 0) || f.positive && f.v < 0 {
+			return fmt.Errorf("report: BuildSettings.%s is %v, want %s", f.name, f.v, f.want)
+		}
 	}
 	return nil
 }
