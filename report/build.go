@@ -22,7 +22,10 @@ type Fit struct {
 	// DC, or Phasors for AC).
 	Problem *inverse.Problem
 	// Result is the fit (inverse.FitLines or FitStrengths); nil when the
-	// fit failed, with the reason in Err.
+	// fit failed, with the reason in Err. Build reports the sources in
+	// Result.Sources: from FitStrengths only its Line sources have one, and a
+	// group whose sources are all segments, polylines or dipoles is reported
+	// as "no conductor was fitted".
 	Result *inverse.Result
 	Err    error
 	// Dipole is true when the caller found the readings better explained
