@@ -109,7 +109,7 @@ func Open(path string, opts ...Option) (Reader, error) {
 func open(path string, cfg *config) (Reader, error) {
 	f, err := os.Open(path)
 	if err != nil {
-		return nil, fileErr(path, nil, "cannot open: %v", unwrapPath(err))
+		return nil, fileErr(path, unwrapPath(err), "cannot open")
 	}
 	// The format is told from the first bytes, peeked through a buffer,
 	// not read and sought back, so that a pipe (a named pipe, /dev/stdin)
@@ -119,14 +119,14 @@ func open(path string, cfg *config) (Reader, error) {
 	st, err := f.Stat()
 	if err != nil {
 		f.Close()
-		return nil, fileErr(path, nil, "cannot read: %v", unwrapPath(err))
+		return nil, fileErr(path, unwrapPath(err), "cannot read")
 	}
 	regular := st.Mode().IsRegular()
 	br := bufio.NewReaderSize(f, 64<<10)
 	head, err := br.Peek(4096)
 	if err != nil && err != io.EOF && err != bufio.ErrBufferFull {
 		f.Close()
-		return nil, fileErr(path, nil, "cannot read: %v", unwrapPath(err))
+		return nil, fileErr(path, unwrapPath(err), "cannot read")
 	}
 	if len(head) == 0 {
 		f.Close()
