@@ -25,6 +25,9 @@ func checkFits(fits []Fit, bs *BuildSettings) error {
 	if err := checkSignal(fits); err != nil {
 		return err
 	}
+	if err := checkResultsMatch(fits); err != nil {
+		return err
+	}
 	below, err := checkReference(fits)
 	if err != nil {
 		return err
@@ -110,6 +113,38 @@ func checkSignal(fits []Fit) error {
 		}
 		if a, b := fits[first].Problem.Phasors != nil, fits[i].Problem.Phasors != nil; a != b {
 			return fmt.Errorf("report: %s is %s but %s is %s: DC and AC fits cannot share a report", fitName(fits, i), signalName(b), fitName(fits, first), signalName(a))
+		}
+	}
+	return nil
+}
+
+// checkResultsMatch refuses a Result that was not fitted to its fit's
+// Problem, as far as the result tells: residuals for another number of
+// readings, or DC residuals (Residuals) for an AC problem (Phasors) or AC
+// ones for a DC problem. Before, such pairs made a quietly wrong document:
+// a result of 30 readings beside a problem of 10 was reported as the fit of
+// those 10 with its profile dropped, and a DC result beside an AC problem
+// gave the DC current a phase and called the group "no current found". A
+// result with no residuals (made by hand) is not checked.
+func checkResultsMatch(fits []Fit) error {
+	for i := range fits {
+		p, r := fits[i].Problem, fits[i].Result
+		if p == nil || r == nil {
+			continue
+		}
+		ac := p.Phasors != nil
+		switch {
+		case ac && r.Residuals != nil && r.ResidualPhasors == nil:
+			return fmt.Errorf("report: %s has an AC problem (phasors) but a DC result (residuals of fields): pair each result with the problem it was fitted to", fitName(fits, i))
+		case !ac && r.ResidualPhasors != nil && r.Residuals == nil:
+			return fmt.Errorf("report: %s has a DC problem (fields) but an AC result (residuals of phasors): pair each result with the problem it was fitted to", fitName(fits, i))
+		}
+		n := len(r.Residuals)
+		if ac {
+			n = len(r.ResidualPhasors)
+		}
+		if (r.Residuals != nil || r.ResidualPhasors != nil) && n != len(p.Points) {
+			return fmt.Errorf("report: %s has a result fitted to %d readings but a problem of %d: pair each result with the problem it was fitted to", fitName(fits, i), n, len(p.Points))
 		}
 	}
 	return nil
