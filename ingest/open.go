@@ -24,9 +24,16 @@ type Reader interface {
 	// RecordBatch is the current batch, valid until the next call to Next
 	// or Release; Retain it to keep it longer.
 	RecordBatch() arrow.RecordBatch
-	// Err is the error that stopped Next, or nil at a clean end.
+	// Err is the error that stopped Next, or nil at a clean end. After
+	// Release before the end of the input it is an *Error whose cause is
+	// ErrReleased: the rows read are not the whole log.
 	Err() error
-	// Release stops any background work and frees the reader's memory.
+	// Release stops any background work and frees the reader's memory;
+	// Next returns false after it.
+	//
+	// A Reader is for one goroutine: Release must not be called while
+	// Next runs in another. To cancel a read, stop calling Next (test a
+	// context between batches), then Release.
 	Release()
 }
 
