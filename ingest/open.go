@@ -178,6 +178,9 @@ func open(path string, cfg *config) (Reader, error) {
 	if cfg.progress != nil {
 		r = &progressReader{Reader: r, fn: cfg.progress}
 	}
+	if cfg.ctx != nil {
+		r = &ctxReader{Reader: r, ctx: cfg.ctx, name: path}
+	}
 	return r, nil
 }
 
