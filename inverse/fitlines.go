@@ -61,12 +61,28 @@ type candidate struct {
 // allows (holdRejected) the Result's notes begin with
 // HeldAnglesRejectedNote, which report takes as a failed fit.
 func FitLines(p *Problem, set *Settings) (*Result, error) {
-	res, err := fitLines(p, set)
-	if err != nil || set == nil || set.Azimuth == nil && set.Dip == nil {
+	held := set != nil && (set.Azimuth != nil || set.Dip != nil)
+	var floor float64
+	res, err := fitLinesFloor(p, set, held, &floor)
+	if err != nil || !held || heldAtFloor(res, floor) {
 		return res, err
 	}
 	callerHoldRejected(p, set, res)
 	return res, nil
+}
+
+// heldAtFloor reports whether res, fitted with angles the caller held, explains the
+// readings to their noise floor (fitter.noiseFloor, taken from the readings' fourth
+// or second differences, not from the fit): its residual RMS per degree of freedom
+// within 1.2 times the floor, as atNoise judges a fit. Such a fit needs no check
+// against a fit with the angles free (callerHoldRejected), which would double the
+// cost of every held fit: the single-traverse benchmark holds both angles. A fit
+// missing the readings by more, or whose floor cannot be estimated, is checked.
+func heldAtFloor(res *Result, floor float64) bool {
+	if res == nil || !(floor > 0) || res.DOF <= 0 || !(res.Sigma > 0) {
+		return false
+	}
+	return res.Sigma*math.Sqrt(res.Chi2/float64(res.DOF)) <= 1.2*floor
 }
 
 // callerHoldRejected compares res, fitted with the angles the caller held
@@ -122,6 +138,12 @@ func callerHoldRejected(p *Problem, set *Settings, res *Result) {
 
 // fitLines is FitLines without the check of the angles the caller held.
 func fitLines(p *Problem, set *Settings) (*Result, error) {
+	return fitLinesFloor(p, set, false, nil)
+}
+
+// fitLinesFloor is fitLines that, when wantFloor, also stores the readings' noise
+// floor (fitter.noiseFloor; 0 when it cannot be estimated) in *floor.
+func fitLinesFloor(p *Problem, set *Settings, wantFloor bool, floor *float64) (*Result, error) {
 	if p == nil {
 		return nil, errors.New("inverse: nil problem")
 	}
@@ -160,6 +182,9 @@ func fitLines(p *Problem, set *Settings) (*Result, error) {
 	}
 	f := &fitter{sv: sv, set: &s, prob: p, scr: scr}
 	res, err := f.run()
+	if wantFloor && err == nil {
+		*floor = f.noiseFloor()
+	}
 	if !sv.single || (s.Azimuth != nil && s.Dip != nil) {
 		return res, err
 	}
