@@ -41,6 +41,7 @@ type arrowReader struct {
 	lastNaive        bool
 	rb               rawBatch
 	done             bool
+	ended            bool // Next reached the end of the input (see Release)
 }
 
 func (r *arrowReader) plan() *plan                    { return r.pl }
@@ -52,6 +53,9 @@ func (r *arrowReader) Release() {
 	if r.cur != nil {
 		r.cur.Release()
 		r.cur = nil
+	}
+	if r.err == nil && !r.ended {
+		r.err = releasedErr(r.name)
 	}
 	if r.closer != nil {
 		r.closer()
@@ -291,6 +295,7 @@ func (r *arrowReader) Next() bool {
 			return false
 		}
 		if rec == nil {
+			r.ended = true
 			r.pl.finishGroups()
 			r.Release()
 			return false

@@ -53,6 +53,7 @@ type csvReader struct {
 	done     chan struct{}
 	wg       sync.WaitGroup
 	stopped  bool
+	ended    bool // Next reached the end of the input (see Release)
 	// nulAt is the line of a run of NUL bytes without a line end that
 	// split dropped (0: none); written by split, read after it ends.
 	nulAt   int
@@ -1262,6 +1263,7 @@ func (r *csvReader) Next() bool {
 	for {
 		ch, ok := <-r.pending
 		if !ok {
+			r.ended = true
 			r.pl.finishGroups()
 			// split has ended (it closed pending): r.nulAt is settled.
 			at := r.nulLine
@@ -1354,6 +1356,9 @@ func (r *csvReader) Release() {
 	if r.cur != nil {
 		r.cur.Release()
 		r.cur = nil
+	}
+	if r.err == nil && !r.ended {
+		r.err = releasedErr(r.name)
 	}
 	r.stop()
 }

@@ -1,6 +1,7 @@
 package ingest
 
 import (
+	"errors"
 	"fmt"
 	"strings"
 )
@@ -64,6 +65,17 @@ func batchRow(batch, row int, fileRow int64) string {
 		s += fmt.Sprintf(" (row %d of the file, counting from 0)", fileRow)
 	}
 	return s
+}
+
+// ErrReleased is the cause (Error.Err) of a Reader's Err after Release
+// was called before the reader reached the end of its input: the rows read
+// are not the whole log. Before, Err was nil then, the sign of a clean end,
+// and a read cancelled by Release passed for the whole file.
+var ErrReleased = errors.New("reader released before the end of the input: the rows read are not the whole log")
+
+// releasedErr is the error of a reader of file released before its end.
+func releasedErr(file string) *Error {
+	return &Error{File: file, Batch: -1, Msg: "read stopped", Err: ErrReleased}
 }
 
 func fileErr(file string, err error, format string, a ...any) *Error {

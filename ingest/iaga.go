@@ -63,6 +63,7 @@ type iagaReader struct {
 	lastLine int
 	rb       rawBatch
 	done     bool
+	ended    bool   // Next reached the end of the input (see Release)
 	pending  []byte // first data line, read while looking for the header
 	// decimals is the number of decimals of the last value of every data
 	// line read so far (IAGA-2002 writes two), -1 before the first, -2
@@ -106,6 +107,9 @@ func (r *iagaReader) Release() {
 	if r.cur != nil {
 		r.cur.Release()
 		r.cur = nil
+	}
+	if r.err == nil && !r.ended {
+		r.err = releasedErr(r.name)
 	}
 	if r.closer != nil {
 		r.closer.Close()
@@ -417,6 +421,7 @@ func (r *iagaReader) Next() bool {
 		}
 	}
 	if r.err != nil || rb.n == 0 {
+		r.ended = r.err == nil
 		r.Release()
 		return false
 	}

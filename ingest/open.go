@@ -24,9 +24,16 @@ type Reader interface {
 	// RecordBatch is the current batch, valid until the next call to Next
 	// or Release; Retain it to keep it longer.
 	RecordBatch() arrow.RecordBatch
-	// Err is the error that stopped Next, or nil at a clean end.
+	// Err is the error that stopped Next, or nil at a clean end. After
+	// Release before the end of the input it is an *Error whose cause is
+	// ErrReleased: the rows read are not the whole log.
 	Err() error
-	// Release stops any background work and frees the reader's memory.
+	// Release stops any background work and frees the reader's memory;
+	// Next returns false after it.
+	//
+	// A Reader is for one goroutine: Release must not be called while
+	// Next runs in another. To cancel a read, stop calling Next (test a
+	// context between batches), then Release.
 	Release()
 }
 
@@ -109,7 +116,7 @@ func Open(path string, opts ...Option) (Reader, error) {
 func open(path string, cfg *config) (Reader, error) {
 	f, err := os.Open(path)
 	if err != nil {
-		return nil, fileErr(path, nil, "cannot open: %v", unwrapPath(err))
+		return nil, fileErr(path, unwrapPath(err), "cannot open")
 	}
 	// The format is told from the first bytes, peeked through a buffer,
 	// not read and sought back, so that a pipe (a named pipe, /dev/stdin)
@@ -119,14 +126,14 @@ func open(path string, cfg *config) (Reader, error) {
 	st, err := f.Stat()
 	if err != nil {
 		f.Close()
-		return nil, fileErr(path, nil, "cannot read: %v", unwrapPath(err))
+		return nil, fileErr(path, unwrapPath(err), "cannot read")
 	}
 	regular := st.Mode().IsRegular()
 	br := bufio.NewReaderSize(f, 64<<10)
 	head, err := br.Peek(4096)
 	if err != nil && err != io.EOF && err != bufio.ErrBufferFull {
 		f.Close()
-		return nil, fileErr(path, nil, "cannot read: %v", unwrapPath(err))
+		return nil, fileErr(path, unwrapPath(err), "cannot read")
 	}
 	if len(head) == 0 {
 		f.Close()
@@ -170,6 +177,9 @@ func open(path string, cfg *config) (Reader, error) {
 	}
 	if cfg.progress != nil {
 		r = &progressReader{Reader: r, fn: cfg.progress}
+	}
+	if cfg.ctx != nil {
+		r = &ctxReader{Reader: r, ctx: cfg.ctx, name: path}
 	}
 	return r, nil
 }

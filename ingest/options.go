@@ -1,6 +1,7 @@
 package ingest
 
 import (
+	"context"
 	"fmt"
 	"runtime"
 	"strings"
@@ -59,8 +60,9 @@ const (
 )
 
 type config struct {
-	mapping           map[int]string // canonical index -> source column name
-	mappingText       []string       // as given, for messages
+	ctx               context.Context // nil: not cancellable (WithContext)
+	mapping           map[int]string  // canonical index -> source column name
+	mappingText       []string        // as given, for messages
 	units             map[int]string
 	delim             byte // 0: detect
 	whitespace        bool // fields separated by runs of blanks
@@ -374,6 +376,15 @@ func withChunkBytes(n int) Option { return func(c *config) { c.chunkBytes = n } 
 // withSlowPathOnly turns off the CSV single-pass line parser (tests compare
 // it with the general path).
 func withSlowPathOnly() Option { return func(c *config) { c.slowOnly = true } }
+
+// WithContext stops a read between record batches once ctx is done:
+// Next returns false and Err is an *Error whose cause is ctx's error
+// (context.Canceled or context.DeadlineExceeded), so that a long read can
+// be cancelled from another goroutine through ctx (a Reader's own methods
+// are for one goroutine) and ReadSamples keeps what its readers carry (the
+// warnings, the frame, the source). With WithOriginMean the first pass
+// over the log stops too.
+func WithContext(ctx context.Context) Option { return func(c *config) { c.ctx = ctx } }
 
 // WithProgress calls fn with the number of rows read so far after every
 // record batch a reader hands out, from the goroutine that calls Next. It

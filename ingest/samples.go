@@ -280,6 +280,17 @@ func (r *samplesReader) Schema() *arrow.Schema          { return r.sc }
 func (r *samplesReader) RecordBatch() arrow.RecordBatch { return r.cur }
 func (r *samplesReader) Err() error                     { return r.err }
 func (r *samplesReader) Release() {
+	r.releaseCur()
+	if r.err == nil && r.at < r.s.Len() {
+		name := r.s.Source
+		if name == "" {
+			name = "samples"
+		}
+		r.err = releasedErr(name)
+	}
+}
+
+func (r *samplesReader) releaseCur() {
 	if r.cur != nil {
 		r.cur.Release()
 		r.cur = nil
@@ -287,9 +298,9 @@ func (r *samplesReader) Release() {
 }
 
 func (r *samplesReader) Next() bool {
-	r.Release()
+	r.releaseCur()
 	n := r.s.Len()
-	if r.at >= n {
+	if r.at >= n || r.err != nil {
 		return false
 	}
 	end := min(n, r.at+r.rows)

@@ -170,7 +170,10 @@ type Settings struct {
 	// line, where it crosses the traverse's line beyond the readings' ends, within 60).
 	// Only when the
 	// fit does not determine it (rank loss, sigma above 15 degrees) is it held
-	// perpendicular to the traverse and reported as not identifiable.
+	// perpendicular to the traverse and reported as not identifiable. Angles held
+	// here are checked against a fit with them free: when the readings reject them
+	// the Result's notes carry HeldAnglesRejectedNote (see FitLines), since a wrong
+	// held angle biases the current and depth beyond their sigmas.
 	Azimuth *float64
 	// Dip, when set, holds every line at this dip (degrees, positive when the line
 	// descends along its direction). When nil the dip is fitted, for a single traverse

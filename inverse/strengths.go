@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"reflect"
 
 	"gonum.org/v1/gonum/blas"
 	"gonum.org/v1/gonum/blas/blas64"
@@ -22,7 +23,9 @@ import (
 // set.Background, which would make the basis singular). Result.Strengths lists them in
 // the order of sources (AC: Result.StrengthPhasors, with StrengthSigmas the one-sigma of
 // each real and imaginary part, equal to that of the magnitude to first order).
-// Result.Sources has one entry per Line source, in order, with the geometry held.
+// Result.Sources has one entry per Line (or *Line) source, in order, with the
+// geometry held; other sources (segments, polylines, dipoles) have none. A nil
+// source is refused.
 // Only set.Background and set.ReferenceZ are used from the settings. With p.Travel set
 // the sources' fields are averaged along each reading's path (see Problem.Travel).
 func FitStrengths(p *Problem, sources []Source, set *Settings) (*Result, error) {
@@ -37,6 +40,9 @@ func FitStrengths(p *Problem, sources []Source, set *Settings) (*Result, error) 
 	}
 	if len(sources) == 0 {
 		return nil, errors.New("inverse: FitStrengths needs at least one source")
+	}
+	if err := checkSources("FitStrengths", sources); err != nil {
+		return nil, err
 	}
 	s := set.orDefault()
 	sv := newSurvey(p)
@@ -117,7 +123,14 @@ func FitStrengths(p *Problem, sources []Source, set *Settings) (*Result, error) 
 	// Line summaries with geometry held.
 	col := 0
 	for _, src := range sources {
-		if ln, ok := src.(Line); ok {
+		// A *Line is a Line too (its methods take the value): before, only
+		// a Line value got its summary, and lines given as pointers were
+		// solved and then left out of Result.Sources without a word.
+		ln, ok := src.(Line)
+		if lp, isPtr := src.(*Line); isPtr {
+			ln, ok = *lp, true
+		}
+		if ok {
 			e := heldLine(ln, sv, r.ReferenceZ)
 			if nr == 1 {
 				e.Current = coef[col]
@@ -336,6 +349,20 @@ func sourceBasis(p *Problem, src Source, si int, phi []float64, rs, cs, col int)
 	return nil
 }
 
+// checkSources refuses a nil source, or a nil pointer to one, naming fn:
+// before, they panicked in the basis.
+func checkSources(fn string, sources []Source) error {
+	for i, src := range sources {
+		if src == nil {
+			return fmt.Errorf("inverse: %s source %d is nil", fn, i)
+		}
+		if v := reflect.ValueOf(src); v.Kind() == reflect.Pointer && v.IsNil() {
+			return fmt.Errorf("inverse: %s source %d is a nil %T", fn, i, src)
+		}
+	}
+	return nil
+}
+
 // StrengthsRSS returns the residual sum of squares, in nT^2 summed over readings and
 // axes (and over real and imaginary parts for AC), of the fit FitStrengths would make
 // with the same arguments, without its covariance: the cheap objective for a caller
@@ -349,6 +376,9 @@ func StrengthsRSS(p *Problem, sources []Source, set *Settings) (float64, error) 
 	}
 	if len(sources) == 0 {
 		return 0, errors.New("inverse: StrengthsRSS needs at least one source")
+	}
+	if err := checkSources("StrengthsRSS", sources); err != nil {
+		return 0, err
 	}
 	sv := newSurvey(p)
 	phi, m, q, _, _, err := strengthsBasis(p, sources, set.orDefault(), sv)

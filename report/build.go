@@ -22,7 +22,10 @@ type Fit struct {
 	// DC, or Phasors for AC).
 	Problem *inverse.Problem
 	// Result is the fit (inverse.FitLines or FitStrengths); nil when the
-	// fit failed, with the reason in Err.
+	// fit failed, with the reason in Err. Build reports the sources in
+	// Result.Sources: from FitStrengths only its Line sources have one, and a
+	// group whose sources are all segments, polylines or dipoles is reported
+	// as "no conductor was fitted".
 	Result *inverse.Result
 	Err    error
 	// Dipole is true when the caller found the readings better explained
@@ -200,13 +203,17 @@ type BuildSettings struct {
 //
 // Signal.Mode is set to AC when the problems carry phasors, DC otherwise,
 // keeping head's frequency and window. Build returns an error when fits is
-// empty, a fit has neither a result nor an error, or the route cannot be
-// built; and when the fits do not make one survey (buildcheck.go): keys
-// repeated, or empty among several fits; DC problems (Fields) mixed with
-// AC ones (Phasors); results whose depths are measured from different
+// empty, a fit has no problem (a failed fit too: give the readings it was
+// asked to fit), a fit has neither a result nor an error, or the route
+// cannot be built; and when the fits do not make one survey
+// (buildcheck.go): keys repeated, or empty among several fits; DC problems
+// (Fields) mixed with AC ones (Phasors); a result that was not fitted to
+// its fit's problem (residuals for another number of readings, or of the
+// other kind, DC or AC); results whose depths are measured from different
 // references (Result.DepthReference, or ReferenceZ heights more than a
 // micrometre apart); or a MinCover with depths below the sensors and no
-// SensorHeight.
+// SensorHeight. A setting that is NaN or infinite, or negative where only
+// zero or more has a meaning, is refused too, naming the field.
 func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 	if len(fits) == 0 {
 		return nil, errors.New("report: no fits to report")

@@ -16,10 +16,16 @@ const refZTolerance = 1e-6
 // a minimum cover to check with no way to know where the ground is. Fits
 // with no Problem are left to Build's own check.
 func checkFits(fits []Fit, bs *BuildSettings) error {
+	if err := bs.check(); err != nil {
+		return err
+	}
 	if err := checkKeys(fits); err != nil {
 		return err
 	}
 	if err := checkSignal(fits); err != nil {
+		return err
+	}
+	if err := checkResultsMatch(fits); err != nil {
 		return err
 	}
 	below, err := checkReference(fits)
@@ -28,6 +34,36 @@ func checkFits(fits []Fit, bs *BuildSettings) error {
 	}
 	if bs != nil && bs.MinCover > 0 && !below && !(bs.SensorHeight > 0) {
 		return fmt.Errorf("report: MinCover %g m needs to know where the ground is: the fits' depths are below the sensors and BuildSettings.SensorHeight is 0 (unknown); give SensorHeight (the sensors' height above ground) or fit with inverse.Settings.ReferenceZ (the ground's height)", bs.MinCover)
+	}
+	return nil
+}
+
+// check refuses settings outside the ranges their documentation gives: a
+// NaN or infinite value, or a negative one where only zero or more has a
+// meaning. Before, Build took them: a NaN or infinite StepK dropped a 7 A
+// earth fault without a word, a NaN MinCover or GroundSigma called every
+// group's cover shallow, and only WriteJSON refused the NaN later.
+func (bs *BuildSettings) check() error {
+	if bs == nil {
+		return nil
+	}
+	for _, f := range []struct {
+		name     string
+		v        float64
+		positive bool // zero or more
+		want     string
+	}{
+		{"SensorHeight", bs.SensorHeight, true, "a height in metres, 0 when not known"},
+		{"MinCover", bs.MinCover, true, "a depth in metres, 0 for no check"},
+		{"GroundSigma", bs.GroundSigma, true, "a length in metres"},
+		{"StepK", bs.StepK, true, "a number of standard deviations, 0 for 3"},
+		{"MinStep", bs.MinStep, false, "a fraction of the current, 0 for 0.02"},
+		{"Noise", bs.Noise, true, "a noise in nT, 0 when the fits estimated it"},
+		{"MeasuredNoise", bs.MeasuredNoise, true, "a noise in nT, 0 when not measured"},
+	} {
+		if math.IsNaN(f.v) || math.IsInf(f.v, 0) || f.positive && f.v < 0 {
+			return fmt.Errorf("report: BuildSettings.%s is %v, want %s", f.name, f.v, f.want)
+		}
 	}
 	return nil
 }
@@ -77,6 +113,38 @@ func checkSignal(fits []Fit) error {
 		}
 		if a, b := fits[first].Problem.Phasors != nil, fits[i].Problem.Phasors != nil; a != b {
 			return fmt.Errorf("report: %s is %s but %s is %s: DC and AC fits cannot share a report", fitName(fits, i), signalName(b), fitName(fits, first), signalName(a))
+		}
+	}
+	return nil
+}
+
+// checkResultsMatch refuses a Result that was not fitted to its fit's
+// Problem, as far as the result tells: residuals for another number of
+// readings, or DC residuals (Residuals) for an AC problem (Phasors) or AC
+// ones for a DC problem. Before, such pairs made a quietly wrong document:
+// a result of 30 readings beside a problem of 10 was reported as the fit of
+// those 10 with its profile dropped, and a DC result beside an AC problem
+// gave the DC current a phase and called the group "no current found". A
+// result with no residuals (made by hand) is not checked.
+func checkResultsMatch(fits []Fit) error {
+	for i := range fits {
+		p, r := fits[i].Problem, fits[i].Result
+		if p == nil || r == nil {
+			continue
+		}
+		ac := p.Phasors != nil
+		switch {
+		case ac && r.Residuals != nil && r.ResidualPhasors == nil:
+			return fmt.Errorf("report: %s has an AC problem (phasors) but a DC result (residuals of fields): pair each result with the problem it was fitted to", fitName(fits, i))
+		case !ac && r.ResidualPhasors != nil && r.Residuals == nil:
+			return fmt.Errorf("report: %s has a DC problem (fields) but an AC result (residuals of phasors): pair each result with the problem it was fitted to", fitName(fits, i))
+		}
+		n := len(r.Residuals)
+		if ac {
+			n = len(r.ResidualPhasors)
+		}
+		if (r.Residuals != nil || r.ResidualPhasors != nil) && n != len(p.Points) {
+			return fmt.Errorf("report: %s has a result fitted to %d readings but a problem of %d: pair each result with the problem it was fitted to", fitName(fits, i), n, len(p.Points))
 		}
 	}
 	return nil

@@ -419,9 +419,13 @@ const (
 type Source struct {
 	// Kind is KindLine or KindDipole.
 	Kind string `json:"kind"`
-	// Point is a point on the conductor, the one under the centroid of the
-	// readings in plan (inverse.SourceEstimate.Point; the dipole's position
-	// for KindDipole), m.
+	// Point is a point on the conductor, m (inverse.SourceEstimate.Point;
+	// the dipole's position for KindDipole): where the line crosses the
+	// group's traverse in plan (inverse.SourceEstimate.AtTrackCrossing),
+	// also when the traverse crosses it obliquely; where the readings are
+	// not one walked traverse or run within 20 degrees of the line, the
+	// point under the centroid of the readings in plan (the source's notes
+	// say so). Depth is the depth there.
 	Point [3]float64 `json:"point_m"`
 	// Direction is the conductor's unit direction.
 	Direction [3]float64 `json:"direction"`

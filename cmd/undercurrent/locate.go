@@ -203,7 +203,7 @@ func (o *locateOptions) check(fs *pflag.FlagSet) error {
 		return usageErrorf("--range-nt %g: want the magnetometer's range in nT > 0", o.rangeNT)
 	}
 	given := func(name string) bool { return fs != nil && fs.Changed(name) }
-	if o.stepK < 0 || math.IsNaN(o.stepK) || given("step-k") && o.stepK == 0 {
+	if o.stepK < 0 || math.IsNaN(o.stepK) || math.IsInf(o.stepK, 0) || given("step-k") && o.stepK == 0 {
 		return usageErrorf("--step-k %g: want a positive number of standard deviations", o.stepK)
 	}
 	if given("window") && o.window == 0 {

@@ -82,6 +82,8 @@ func TestLocateBadInput(t *testing.T) {
 		{"negative ground sigma", []string{"--sensor-height", "0.3", "--ground-sigma", "-0.02", good}, 2, []string{"--ground-sigma -0.02"}},
 		{"negative min step", []string{"--min-step", "-1", good}, 2, []string{"--min-step -1"}},
 		{"zero step k", []string{"--step-k", "0", good}, 2, []string{"--step-k 0"}},
+		// An infinite --step-k had been taken, and the run lost every step in current.
+		{"infinite step k", []string{"--step-k", "Inf", good}, 2, []string{"--step-k +Inf"}},
 		{"zero window", []string{"--freq", "50", "--window", "0", good}, 2, []string{"--window 0"}},
 		{"zero sensor height", []string{"--sensor-height", "0", "--min-cover", "0.6", good}, 2, []string{"--sensor-height 0", "--reference-z"}},
 		{"base hold without base", []string{"--base-hold", "60", good}, 2, []string{"--base-hold needs --base"}},

@@ -81,10 +81,15 @@ type Route struct {
 // error, naming the station, when there are no stations or a value is not
 // finite or a sigma is negative. A station whose current is used (OK and
 // not Dipole) with a CurrentSigma of zero is read as exact, to one part in
-// a billion (see Station). The stations slice is not modified.
+// a billion (see Station). It also returns an error, naming the field, for
+// a setting that is NaN or infinite, or negative where only zero or more
+// has a meaning (Settings). The stations slice is not modified.
 func Build(stations []Station, set *Settings) (*Route, error) {
 	if len(stations) == 0 {
 		return nil, errors.New("route: no stations")
+	}
+	if err := set.check(); err != nil {
+		return nil, err
 	}
 	for i := range stations {
 		if err := check(&stations[i], i); err != nil {

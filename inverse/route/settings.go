@@ -1,6 +1,9 @@
 package route
 
-import "math"
+import (
+	"fmt"
+	"math"
+)
 
 // Settings tunes Build. A nil *Settings or a zero field takes the default
 // given beside it.
@@ -66,6 +69,39 @@ type Settings struct {
 	// estimates hold to about that fraction. Zero means 0.01; a negative
 	// value makes every such fit a caution.
 	MinorMisfit float64
+}
+
+// check refuses settings outside the ranges their documentation gives:
+// a NaN or infinite value in any field, and a negative StepK, CoverK,
+// MinCover, SensorHeight or GroundSigma, whose zero alone has a meaning
+// (the default, or no check). Before, these were taken without a word: a
+// NaN or infinite StepK dropped every step in current (a clean 1 A fault
+// on 5 A gave no finding), and a NaN GroundSigma called every station's
+// cover shallow.
+func (s *Settings) check() error {
+	if s == nil {
+		return nil
+	}
+	for _, f := range []struct {
+		name     string
+		v        float64
+		positive bool // zero or more
+		want     string
+	}{
+		{"StepK", s.StepK, true, "a number of standard deviations, 0 for 3"},
+		{"MinStep", s.MinStep, false, "a fraction of the current, 0 for 0.02, negative for every significant change"},
+		{"MinCover", s.MinCover, true, "a depth in metres, 0 for no check"},
+		{"SensorHeight", s.SensorHeight, true, "a height in metres, 0 when not known"},
+		{"GroundSigma", s.GroundSigma, true, "a length in metres"},
+		{"CoverK", s.CoverK, true, "a number of standard deviations, 0 for 2"},
+		{"MaxReducedChi2", s.MaxReducedChi2, false, "a ratio, 0 for 4, negative for no check"},
+		{"MinorMisfit", s.MinorMisfit, false, "a fraction of the signal, 0 for 0.01"},
+	} {
+		if math.IsNaN(f.v) || math.IsInf(f.v, 0) || f.positive && f.v < 0 {
+			return fmt.Errorf("route: Settings.%s is %v, want %s", f.name, f.v, f.want)
+		}
+	}
+	return nil
 }
 
 func (s *Settings) minorMisfit() float64 {
