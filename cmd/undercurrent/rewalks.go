@@ -3,6 +3,7 @@ package main
 import (
 	"fmt"
 	"math"
+	"strings"
 
 	"undercurrent/ingest"
 )
@@ -259,6 +260,27 @@ func walksOrdinal(k int) string {
 		return names[k]
 	}
 	return fmt.Sprintf("walks %d", k+1)
+}
+
+// traverseOf names the traverse the group key of the log from walks, for
+// the route to pair its walks (route.Station.Traverse): the key less the
+// log's label that several logs give a value used again (LOG:T04,
+// nameReusedGroups) and less the walk's number of a traverse walked again
+// in one log (T04 (walk 2), splitRewalkedGroups; rewalks as it returns
+// them). A value used again for another traverse far along the route
+// shares the name too: the route pairs only walks less than half its
+// spacing apart along it.
+func traverseOf(key, from string, logs []string, rewalks map[string]int) string {
+	t := key
+	if len(logs) > 1 {
+		t = strings.TrimPrefix(t, logLabel(from, logs)+":")
+	}
+	if n := rewalks[rewalkKey(from, t)]; n > 1 {
+		if i := strings.LastIndex(t, " (walk "); i > 0 {
+			t = t[:i]
+		}
+	}
+	return t
 }
 
 // rewalkKey keys a renamed walk by its log and name.
