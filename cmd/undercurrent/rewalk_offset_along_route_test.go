@@ -197,3 +197,55 @@ func TestRewalkOffsetAlongRoutePaired(t *testing.T) {
 		}
 	}
 }
+
+// TestRewalkAtBendOneChainage: testdata/scenarios/open/bend.toml (simulated
+// truth: a 20 A cable turning 45° at east 50 m, 25 traverses 4 m apart)
+// walked again the next day at 22 A, the second walk's positions moved
+// 1.2 m east, along the first leg (an uncorrected GNSS offset between
+// days), in one log. The walks of each traverse are repeats, but the
+// chainage through a bend places each station by its own point, so T13
+// and T13 (walk 2), at the bend, lay 0.9 m apart after the set had been
+// put at one chainage, and the report (which tells repeats by chainage)
+// no longer took them for one station. Every later walk now lies at its
+// first walk's chainage, at the bend as on the straight.
+func TestRewalkAtBendOneChainage(t *testing.T) {
+	dir := t.TempDir()
+	logs := walkTwice(t, dir, filepath.Join("open", "bend.toml"), 1, 2, func(text []byte) []byte {
+		out := strings.Replace(string(text), "current_a = 20.0", "current_a = 22.0", 1)
+		if out == string(text) {
+			t.Fatal("bend.toml has no current_a = 20.0 line to change")
+		}
+		return []byte(out)
+	}, nil)
+	if len(logs) != 2 {
+		t.Fatalf("bend.toml walked twice gave %q, want two logs and no base", logs)
+	}
+	day2, err := ingest.ReadSamples(logs[1])
+	if err != nil {
+		t.Fatal(err)
+	}
+	moved := rowsOf(day2, func(string) bool { return true }, nil)
+	for i := range moved.X {
+		moved.X[i] += 1.2
+	}
+	later := writeSplitLog(t, dir, "day2-moved.csv", moved)
+	r := locateRewalk(t, dir, "bend-again", []string{"--reference-z", "0", joinLogs(t, dir, "both.csv", logs[0], later)})
+	first := map[string]float64{}
+	for _, s := range r.stations {
+		if !strings.HasSuffix(s.Key, ")") {
+			first[s.Key] = s.Chainage
+		}
+	}
+	if len(first) != 25 || len(r.stations) != 50 {
+		t.Fatalf("%d stations, %d of the first walk; want 50 and 25", len(r.stations), len(first))
+	}
+	for _, s := range r.stations {
+		key := strings.TrimSuffix(s.Key, " (walk 2)")
+		if key == s.Key {
+			continue
+		}
+		if d := s.Chainage - first[key]; math.Abs(d) > 0.01 {
+			t.Errorf("%s at chainage %.2f m, %.2f m from its first walk's %s", s.Key, s.Chainage, d, key)
+		}
+	}
+}
