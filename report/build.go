@@ -62,6 +62,10 @@ type Fit struct {
 	// of a station disagree (route.Station.Walk).
 	Walk  string
 	Start time.Time
+	// Traverse names the traverse the group walks where the caller knows
+	// it (the group value its walks share), for the route to pair a
+	// station's walks (route.Station.Traverse); empty when not known.
+	Traverse string
 
 	// levelOff, when not 0, is the mean height, m, of the group's sensors
 	// above a --reference-z level that one flat level does not fit
@@ -860,7 +864,7 @@ func circuitPartner(f *Fit, ac, pairRoute bool) int {
 func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute bool, sensorHeight float64) (Group, route.Station) {
 	pts := f.Problem.Points
 	g := Group{Key: f.Key, Points: len(pts), Centroid: centroid(pts), Sources: []Source{}}
-	st := route.Station{Key: f.Key, Point: g.Centroid, AC: ac, Dipole: f.Dipole, Walk: f.Walk, Start: f.Start}
+	st := route.Station{Key: f.Key, Point: g.Centroid, AC: ac, Dipole: f.Dipole, Walk: f.Walk, Start: f.Start, Traverse: f.Traverse}
 	if f.Result == nil {
 		g.Problem = "the fit failed: " + f.Err.Error()
 		st.Problem = g.Problem

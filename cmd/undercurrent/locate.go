@@ -2013,6 +2013,7 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 			fits[i].PhaseRampHz, fits[i].PhaseRampSigmaHz = g.ramp.hz, g.ramp.sigma
 		}
 		fits[i].MeasuredNoise = g.measuredNoise(sv.ac)
+		fits[i].Traverse = traverseOf(g.key, g.from, sv.logs, sv.rewalks)
 		if len(sv.logs) > 1 {
 			fits[i].Walk = logLabel(g.from, sv.logs)
 			if n := sv.rewalks[rewalkKey(g.from, g.key)]; n > 1 {

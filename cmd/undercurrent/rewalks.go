@@ -3,6 +3,7 @@ package main
 import (
 	"fmt"
 	"math"
+	"strings"
 
 	"undercurrent/ingest"
 )
@@ -106,7 +107,7 @@ func splitRewalkedGroups(logs []string, all []*ingest.Samples) ([]string, map[st
 						in = w
 						break
 					}
-					if d, _ := w.at.span.apart(p.span); d <= reusedApartM {
+					if d, _ := w.at.span.apart(p.span); d <= reusedApartM || alongside(w.at, p) {
 						// The same ground again, after the pause: a walk
 						// again at w's station, or another traverse
 						// beside it (rewalkstation.go).
@@ -177,6 +178,36 @@ func splitRewalkedGroups(logs []string, all []*ingest.Samples) ([]string, map[st
 		}
 	}
 	return warns, walkNo
+}
+
+// alongside reports whether the run p lies beside the walk w, whatever
+// its distance across w's line: whether more than half of the shorter
+// one's length along that line lies within the other's extent along it.
+// Within reusedApartM a run after a pause was weighed as a walk again or
+// a mislabel (rewalkStation); further off it stayed with the walk before
+// it, so the next traverse walked under T04's name on a route of 20 m
+// spacing (a run 20 m across T04's line) was fitted with T04 as one
+// traverse, a station where nobody walked, at the mean of the two and
+// with a blend of their currents and depths, where the same mislabel at
+// 4 m spacing was split off (found in review). A run beside the first
+// walk at any distance across its line is now weighed alike, and
+// rewalkStation's share of the spacing tells the two apart.
+func alongside(w, p *logPart) bool {
+	l := runLineOf(w.xy)
+	extent := func(xy [][2]float64) (lo, hi float64) {
+		lo, hi = math.Inf(1), math.Inf(-1)
+		for _, q := range xy {
+			u := (q[0]-l.cx)*l.ux + (q[1]-l.cy)*l.uy
+			lo, hi = math.Min(lo, u), math.Max(hi, u)
+		}
+		return lo, hi
+	}
+	if len(w.xy) == 0 || len(p.xy) == 0 {
+		return false
+	}
+	a0, a1 := extent(w.xy)
+	b0, b1 := extent(p.xy)
+	return math.Min(a1, b1)-math.Max(a0, b0) >= 0.5*math.Min(a1-a0, b1-b0)
 }
 
 // rewalkSplit is a group value of one log whose traverse was walked
@@ -259,6 +290,27 @@ func walksOrdinal(k int) string {
 		return names[k]
 	}
 	return fmt.Sprintf("walks %d", k+1)
+}
+
+// traverseOf names the traverse the group key of the log from walks, for
+// the route to pair its walks (route.Station.Traverse): the key less the
+// log's label that several logs give a value used again (LOG:T04,
+// nameReusedGroups) and less the walk's number of a traverse walked again
+// in one log (T04 (walk 2), splitRewalkedGroups; rewalks as it returns
+// them). A value used again for another traverse far along the route
+// shares the name too: the route pairs only walks less than half its
+// spacing apart along it.
+func traverseOf(key, from string, logs []string, rewalks map[string]int) string {
+	t := key
+	if len(logs) > 1 {
+		t = strings.TrimPrefix(t, logLabel(from, logs)+":")
+	}
+	if n := rewalks[rewalkKey(from, t)]; n > 1 {
+		if i := strings.LastIndex(t, " (walk "); i > 0 {
+			t = t[:i]
+		}
+	}
+	return t
 }
 
 // rewalkKey keys a renamed walk by its log and name.

@@ -54,6 +54,11 @@ func repeatSpacing(ps []Placed) float64 {
 		if !ps[k].usable() {
 			continue
 		}
+		// A walk again of the station before it (by the caller's word)
+		// is no interval of the spacing (see walkedAgain).
+		if prev >= 0 && sameTraverse(&ps[prev], &ps[k]) {
+			continue
+		}
 		if prev >= 0 {
 			d = append(d, alongApart(&ps[prev], &ps[k]))
 		}
@@ -122,6 +127,37 @@ func alongApart(a, b *Placed) float64 {
 		return ch
 	}
 	return math.Abs(dx*u[0] + dy*u[1])
+}
+
+// Repeats told by the traverse's name.
+//
+// Told by chainage alone, a station's repeat had to lie within
+// repeatFrac of the spacing along the route, and the spacing was the
+// median of the intervals: on a route walked twice with a position
+// offset between the walks along the route (an uncorrected GNSS offset
+// between days), half the intervals are the offset, so 0.3 m on
+// traverses 4 m apart was read as the spacing and no station had a
+// repeat; 1.2 m was more than a tenth of even the true spacing. Every
+// station then stood on its own, a walk's 10% more current read as a
+// rise and fall at every traverse: the 3 A loss went unreported, no
+// walks-differ, each repeat its own chainage (found in review). Where the
+// caller names the traverse each station walks (Station.Traverse, the
+// name the walks share), two successive stations of one traverse less
+// than half the spacing apart along the route are repeats (walkedAgain),
+// and the intervals between them are not the spacing (repeatSpacing):
+// an offset well below the spacing pairs the walks, whatever the
+// spacing. Half a spacing keeps the walks of two traverses apart, as an
+// infill traverse between two others stays apart by the chainage rule.
+
+// sameTraverse reports whether the stations a and b walk one traverse by
+// the caller's word (the same non-empty Traverse).
+func sameTraverse(a, b *Placed) bool { return a.Traverse != "" && a.Traverse == b.Traverse }
+
+// walkedAgain reports whether the station b, after a in route order, is a
+// walk again of a's traverse (sameTraverse) less than half the route's
+// spacing (gap over repeatFrac) after it along the route.
+func walkedAgain(a, b *Placed, gap float64) bool {
+	return gap > 0 && sameTraverse(a, b) && b.Chainage-a.Chainage < 0.5*gap/repeatFrac
 }
 
 // RepeatGapAlong is the chainage within which stations are repeats of one
@@ -374,13 +410,14 @@ func alsoText(also []string) string {
 }
 
 // repeatRuns calls visit for each run of successive stations of ps (route
-// order) less than gap apart along the route (alongApart) from the run's first, ps[i:j],
+// order) less than gap apart along the route (alongApart) from the run's
+// first, or walks again of its traverse (walkedAgain), ps[i:j],
 // with its usable stations: the repeats of one station when there are two
 // or more (combineRepeats, repeatSets).
 func repeatRuns(ps []Placed, gap float64, visit func(i, j int, use []*Placed)) {
 	for i := 0; i < len(ps); {
 		j := i + 1
-		for j < len(ps) && alongApart(&ps[i], &ps[j]) < gap {
+		for j < len(ps) && (alongApart(&ps[i], &ps[j]) < gap || walkedAgain(&ps[i], &ps[j], gap)) {
 			j++
 		}
 		var use []*Placed
@@ -392,4 +429,21 @@ func repeatRuns(ps []Placed, gap float64, visit func(i, j int, use []*Placed)) {
 		visit(i, j, use)
 		i = j
 	}
+}
+
+// alignRepeats gives every station of each run of repeats of ps (route
+// order, each run in walk order: walkOrder) the chainage of the run's
+// first, the earliest walk's. cornerChainage places each station within a
+// bend by its own point, so the walks of a traverse at the bend, which
+// walkOrder had put at one chainage, lay their position offset apart
+// again: T13 and T13 (walk 2) 0.9 m apart on bend.toml walked again 1.2 m
+// along its first leg, where the report (RepeatGapAlong, by chainage
+// alone) no longer took them for one station (found while fixing review
+// rv16a finding 6).
+func alignRepeats(ps []Placed, gap float64) {
+	repeatRuns(ps, gap, func(i, j int, _ []*Placed) {
+		for k := i + 1; k < j; k++ {
+			ps[k].Chainage = ps[i].Chainage
+		}
+	})
 }

@@ -112,6 +112,8 @@ func Build(stations []Station, set *Settings) (*Route, error) {
 	gap := repeatGap(r.Stations)
 	orient(r.Stations, gap)
 	cornerChainage(r.Stations, set)
+	// A set of repeats within a bend back at one chainage (repeats.go).
+	alignRepeats(r.Stations, repeatGap(r.Stations))
 	r.Length = r.Stations[len(r.Stations)-1].Chainage
 
 	unwidenPoor(r.Stations, set)

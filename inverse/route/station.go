@@ -116,6 +116,14 @@ type Station struct {
 	// station are taken as walks in the order given.
 	Walk  string
 	Start time.Time
+	// Traverse names the traverse the group's readings walk, when the
+	// caller knows it (the group value its walks share: "T04" for T04,
+	// "T04 (walk 2)" and "day2.csv:T04"); empty when not known. Two
+	// stations of one Traverse less than half the route's spacing apart
+	// along it are repeats of one station whatever their distance
+	// (repeats.go walkedAgain); without it, repeats are told by chainage
+	// alone.
+	Traverse string
 	// Further lists the other line sources of the group's fit, besides
 	// the conductor the route follows (dipoles are not listed): a second
 	// conductor, or a source the fit added to absorb the main conductor's
