@@ -138,7 +138,7 @@ func Build(stations []Station, set *Settings) (*Route, error) {
 	r.Findings = append(r.Findings, st...)
 	r.Findings = append(r.Findings, ends...)
 	r.Findings = append(r.Findings, cover(r.Stations, set)...)
-	for _, f := range quality(r.Stations, set) {
+	for _, f := range quality(r.Stations, set, st) {
 		if f.Kind == KindPoorFit && len(f.Keys) == 1 && notes[f.Keys[0]] != "" {
 			f.Message += notes[f.Keys[0]]
 		}
