@@ -745,14 +745,9 @@ func (v *view) summarise() {
 			// first walk's level, each pooled over its repeats, not the
 			// start from one walk and the end from another (a 0.435 A
 			// fall along the route read as 0.299 A; found in review).
-			ia, sa := r.endLevel(&a)
-			ib, sb := r.endLevel(&b)
-			level := ""
-			if r.FirstWalk != "" {
-				level = fmt.Sprintf(", both at the level of %s (the walks' currents differ; the others' are brought to it as the walks-differ caution says)", r.FirstWalk)
-			}
-			v.Headline = append(v.Headline, fmt.Sprintf("%s is %s A at chainage %.0f m and %s A at %.0f m%s.",
-				what, pm(ia, sa), a.Chainage, pm(ib, sb), b.Chainage, level))
+			// On an AC route each end with its phase (endCurrent).
+			v.Headline = append(v.Headline, fmt.Sprintf("%s is %s at chainage %.0f m and %s at %.0f m%s.",
+				what, endCurrent(d, r, &a), a.Chainage, endCurrent(d, r, &b), b.Chainage, firstWalkClause(r)))
 			// The shallowest station is taken from every used one (cover is
 			// a safety matter); the deepest from those whose fit is sound,
 			// when there are any: a bend's poor fit read 1.34 m where the
@@ -1262,9 +1257,12 @@ func trackHeadline(d *Document, t *Track) string {
 		}
 	}
 	if len(used) > 0 {
+		// Each end at the first walk's level on a route walked again at
+		// another current, named by the first walk's station (endCurrent).
 		a, b := used[0], used[len(used)-1]
-		line += fmt.Sprintf("; %s %s A%s at %s and %s A%s at %s", current,
-			pm(a.Current, a.CurrentSigma), stationPhase(d, a), a.Key, pm(b.Current, b.CurrentSigma), stationPhase(d, b), b.Key)
+		r := &t.Route
+		line += fmt.Sprintf("; %s %s at %s and %s at %s%s", current,
+			endCurrent(d, r, &a), r.endStation(&a).Key, endCurrent(d, r, &b), r.endStation(&b).Key, firstWalkClause(r))
 		switch flowAgainst(d, used) {
 		case 1:
 			line += ", flowing the opposite way to conductor 1 (a return path, for example)"
