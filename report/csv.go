@@ -26,7 +26,12 @@ import (
 // station's current (and phase), whose shares the rows' current_a give.
 // uncertainty_note is empty unless the group's sigmas carry a caveat of
 // their own: "robust (Huber) weights: uncertainties are approximate"
-// (inverse.RobustNote) for a fit with --robust.
+// (inverse.RobustNote) for a fit with --robust. current_first_walk_a and
+// its sigma are, on a used station's row of a route walked again at
+// currents that differ by one change or ratio per walk (Route.FirstWalk),
+// the station's current at the first walk's level, as the steps, the
+// summary and the current plot take it (Station.CurrentFirstWalk); empty
+// otherwise (they were in results.json alone, found in review).
 var csvHeader = []string{
 	"chainage_m", "route_chainage_m", "group", "source", "conductor", "kind", "signal",
 	"current_a", "current_sigma_a", "phase_deg", "phase_sigma_deg",
@@ -41,6 +46,7 @@ var csvHeader = []string{
 	"pair_net_current_phase_deg", "pair_net_current_phase_sigma_deg",
 	"sum_current_a", "sum_current_sigma_a", "sum_phase_deg", "sum_phase_sigma_deg",
 	"uncertainty_note",
+	"current_first_walk_a", "current_first_walk_sigma_a",
 }
 
 // csvCol maps a column name of csvHeader to its index.
@@ -181,6 +187,10 @@ func WriteCSV(w io.Writer, d *Document) error {
 			if st := d.stationOf(&g, i, &s); st != nil {
 				set("used", strconv.FormatBool(st.Used))
 				set("left_out", textCell(d.leftOut(st, s.Conductor)))
+				if st.CurrentFirstWalk != nil && st.CurrentFirstWalkSigma != nil {
+					set("current_first_walk_a", fixSig(*st.CurrentFirstWalk, *st.CurrentFirstWalkSigma, 4))
+					set("current_first_walk_sigma_a", sigCell(*st.CurrentFirstWalkSigma))
+				}
 			}
 			if p := g.Pair; p != nil && (i == p.Sources[0] || i == p.Sources[1]) {
 				// A line of an unresolved go-and-return pair: its current

@@ -226,8 +226,13 @@ func findingOf(f route.Finding) Finding {
 		ChainageFrom: f.From,
 		ChainageTo:   f.To,
 		Position:     f.Position,
-		Groups:       append([]string(nil), f.Keys...),
 		Message:      f.Message,
+	}
+	// Each station's repeats after it (a route walked again): the
+	// groups whose readings the finding used.
+	for _, k := range f.Keys {
+		nf.Groups = append(nf.Groups, k)
+		nf.Groups = append(nf.Groups, f.Repeats[k]...)
 	}
 	for _, v := range f.Values {
 		nf.Values = append(nf.Values, Value{Name: v.Name, Value: v.Value, Sigma: v.Sigma, Unit: v.Unit})

@@ -153,6 +153,13 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 				if why := d.leftOut(st, s.Conductor); why != "" {
 					props["left_out"] = why
 				}
+				// A route walked again at another current: the station's
+				// current at the first walk's level, as the steps take it
+				// (Station.CurrentFirstWalk).
+				if st.CurrentFirstWalk != nil && st.CurrentFirstWalkSigma != nil {
+					props["current_first_walk_a"] = roundSig(*st.CurrentFirstWalk, *st.CurrentFirstWalkSigma, 4)
+					putSigma(props, "current_first_walk_sigma_a", *st.CurrentFirstWalkSigma)
+				}
 			}
 			if c, ok := d.cover(depth); ok {
 				cs := d.sourceCoverSigma(depthSigma)

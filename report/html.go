@@ -68,6 +68,11 @@ type view struct {
 	Plan      template.HTML
 	Current   template.HTML
 	Depth     template.HTML
+	// Phase is the AC phase along the route (empty for DC), and
+	// FirstWalk the route's Route.FirstWalk, which the current plot's
+	// caption names.
+	Phase     template.HTML
+	FirstWalk string
 	DepthNote string
 	Tracks    []trackView
 	Profiles  []template.HTML
@@ -121,6 +126,9 @@ type trackView struct {
 	Number         int
 	Lead           string
 	Current, Depth template.HTML
+	// Phase and FirstWalk are as the view's, for this conductor.
+	Phase     template.HTML
+	FirstWalk string
 	// PairNet is the track's Route.PairNet: its current is a pair's net
 	// current.
 	PairNet bool
@@ -745,14 +753,9 @@ func (v *view) summarise() {
 			// first walk's level, each pooled over its repeats, not the
 			// start from one walk and the end from another (a 0.435 A
 			// fall along the route read as 0.299 A; found in review).
-			ia, sa := r.endLevel(&a)
-			ib, sb := r.endLevel(&b)
-			level := ""
-			if r.FirstWalk != "" {
-				level = fmt.Sprintf(", both at the level of %s (the walks' currents differ; the others' are brought to it as the walks-differ caution says)", r.FirstWalk)
-			}
-			v.Headline = append(v.Headline, fmt.Sprintf("%s is %s A at chainage %.0f m and %s A at %.0f m%s.",
-				what, pm(ia, sa), a.Chainage, pm(ib, sb), b.Chainage, level))
+			// On an AC route each end with its phase (endCurrent).
+			v.Headline = append(v.Headline, fmt.Sprintf("%s is %s at chainage %.0f m and %s at %.0f m%s.",
+				what, endCurrent(d, r, &a), a.Chainage, endCurrent(d, r, &b), b.Chainage, firstWalkClause(r)))
 			// The shallowest station is taken from every used one (cover is
 			// a safety matter); the deepest from those whose fit is sound,
 			// when there are any: a bend's poor fit read 1.34 m where the
@@ -1262,9 +1265,12 @@ func trackHeadline(d *Document, t *Track) string {
 		}
 	}
 	if len(used) > 0 {
+		// Each end at the first walk's level on a route walked again at
+		// another current, named by the first walk's station (endCurrent).
 		a, b := used[0], used[len(used)-1]
-		line += fmt.Sprintf("; %s %s A%s at %s and %s A%s at %s", current,
-			pm(a.Current, a.CurrentSigma), stationPhase(d, a), a.Key, pm(b.Current, b.CurrentSigma), stationPhase(d, b), b.Key)
+		r := &t.Route
+		line += fmt.Sprintf("; %s %s at %s and %s at %s%s", current,
+			endCurrent(d, r, &a), r.endStation(&a).Key, endCurrent(d, r, &b), r.endStation(&b).Key, firstWalkClause(r))
 		switch flowAgainst(d, used) {
 		case 1:
 			line += ", flowing the opposite way to conductor 1 (a return path, for example)"
@@ -1437,9 +1443,10 @@ func (v *view) plots() error {
 	v.PlanShows = planShowsOf(d)
 	if d.Route != nil && len(d.Route.Stations) > 1 {
 		var err error
-		if v.Current, v.Depth, err = alongPlots(d, d.Route, 0); err != nil {
+		if v.Current, v.Phase, v.Depth, err = alongPlots(d, d.Route, 0); err != nil {
 			return err
 		}
+		v.FirstWalk = firstWalkName(d.Route.FirstWalk)
 		if _, ok := groundDepth(d); !ok {
 			v.DepthNote = "The ground and the minimum-cover line are not drawn: the sensors' height above ground was not given."
 		} else if d.MinCover == nil {
@@ -1450,8 +1457,8 @@ func (v *view) plots() error {
 			if len(t.Route.Stations) < 2 {
 				continue
 			}
-			tv := trackView{Number: t.Number, Lead: trackSummary(d, t), PairNet: t.Route.PairNet}
-			if tv.Current, tv.Depth, err = alongPlots(d, &t.Route, t.Number); err != nil {
+			tv := trackView{Number: t.Number, Lead: trackSummary(d, t), PairNet: t.Route.PairNet, FirstWalk: firstWalkName(t.Route.FirstWalk)}
+			if tv.Current, tv.Phase, tv.Depth, err = alongPlots(d, &t.Route, t.Number); err != nil {
 				return err
 			}
 			v.Tracks = append(v.Tracks, tv)
@@ -1485,9 +1492,11 @@ func (v *view) plots() error {
 	return nil
 }
 
-// alongPlots renders current and depth along route r, the primary route
-// when conductor is 0, else the route of that further conductor.
-func alongPlots(d *Document, r *Route, conductor int) (cur, dep template.HTML, err error) {
+// alongPlots renders current, phase (AC routes with two used stations
+// or more that have one; empty otherwise) and depth along route r, the
+// primary route when conductor is 0, else the route of that further
+// conductor.
+func alongPlots(d *Document, r *Route, conductor int) (cur, ph, dep template.HTML, err error) {
 	what := "the route"
 	if conductor > 0 {
 		what = fmt.Sprintf("conductor %d", conductor)
@@ -1496,12 +1505,37 @@ func alongPlots(d *Document, r *Route, conductor int) (cur, dep template.HTML, e
 		return func(narrow bool) (*plot.Plot, error) { return alongPlot(d, r, conductor, which, narrow) }
 	}
 	if cur, err = figure(build("current"), 20*vg.Centimeter, 8.5*vg.Centimeter, smallSide, smallAlong, "current along "+what); err != nil {
-		return "", "", fmt.Errorf("report: current plot of %s: %w", what, err)
+		return "", "", "", fmt.Errorf("report: current plot of %s: %w", what, err)
+	}
+	// AC: the phase along the route, where current leaving at an angle
+	// to the line current shows as a turn that the RMS current alone
+	// does not measure (found in review: the only plot was the RMS
+	// current, which rose across a 3 A fault).
+	if phasedStations(d, r, conductor) >= 2 {
+		if ph, err = figure(build("phase"), 20*vg.Centimeter, 8.5*vg.Centimeter, smallSide, smallAlong, "phase along "+what); err != nil {
+			return "", "", "", fmt.Errorf("report: phase plot of %s: %w", what, err)
+		}
 	}
 	if dep, err = figure(build("depth"), 20*vg.Centimeter, 8.5*vg.Centimeter, smallSide, smallAlong, "depth along "+what); err != nil {
-		return "", "", fmt.Errorf("report: depth plot of %s: %w", what, err)
+		return "", "", "", fmt.Errorf("report: depth plot of %s: %w", what, err)
 	}
-	return cur, dep, nil
+	return cur, ph, dep, nil
+}
+
+// phasedStations counts the used stations of route r (of conductor, 0
+// for conductor 1) with an AC phase; 0 for DC.
+func phasedStations(d *Document, r *Route, conductor int) int {
+	if d.Signal.Mode != SignalAC {
+		return 0
+	}
+	n := 0
+	for i := range r.Stations {
+		st := &r.Stations[i]
+		if st.Phase != nil && st.PhaseSigma != nil && d.whyLeftOut(st, conductor) == leftUsed {
+			n++
+		}
+	}
+	return n
 }
 
 // Sizes of the figures on a phone's screen (the page's CSS shows them

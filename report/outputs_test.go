@@ -509,7 +509,7 @@ func TestHTMLPolish(t *testing.T) {
 // height on the canvas is below the bottom of the plot's background.
 func TestPlotLegendBelow(t *testing.T) {
 	d := fenwickLane(false)
-	_, dep, err := alongPlots(d, d.Route, 0)
+	_, _, dep, err := alongPlots(d, d.Route, 0)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -1201,11 +1201,33 @@ func alongPlot(d *Document, r *Route, conductor int, which string, narrow bool) 
 	// drawn dotted, as the plan view draws the route past such stations.
 	var across []bool
 	skipped := false
+	// On a route walked again at another current (Route.FirstWalk) the
+	// current plot draws every used station at the first walk's level,
+	// as the steps and the summary take it, and the later walks' own
+	// readings apart (later), not joined: drawn raw and joined in
+	// station order, the line saw-toothed between the walks' levels at
+	// every station (25 and 27.5 A) and showed no loss (found in
+	// review). used are the used stations drawn, in route order.
+	levelled := r.FirstWalk != "" && which == "current"
+	var used []*Station
+	var later xy
+	// The phase plot (AC) draws each station's phase unwrapped along
+	// the route from the one before it.
+	prevPhase, havePhase := 0.0, false
 	for i := range r.Stations {
 		st := &r.Stations[i]
 		v, s := st.Current, st.CurrentSigma
-		if which == "depth" {
+		switch which {
+		case "depth":
 			v, s = st.Depth, st.DepthSigma
+		case "phase":
+			if st.Phase == nil || st.PhaseSigma == nil {
+				continue
+			}
+			v, s = *st.Phase, *st.PhaseSigma
+			if havePhase {
+				v = prevPhase + wrapDeg(v-prevPhase)
+			}
 		}
 		why := d.whyLeftOut(st, conductor)
 		if why != leftUsed {
@@ -1213,8 +1235,18 @@ func alongPlot(d *Document, r *Route, conductor int, which string, narrow bool) 
 		}
 		switch why {
 		case leftUsed:
+			if which == "phase" {
+				prevPhase, havePhase = v, true
+			}
+			if levelled {
+				if st.CurrentFirstWalk != nil && *st.CurrentFirstWalk != st.Current {
+					later.x, later.y = append(later.x, st.Chainage), append(later.y, v)
+				}
+				v, s = st.levelCurrent()
+			}
 			x, y, e = append(x, st.Chainage), append(y, v), append(e, 2*s)
 			across = append(across, skipped && len(x) > 1)
+			used = append(used, st)
 			skipped = false
 		case leftFailed:
 			fx = append(fx, st.Chainage)
@@ -1264,9 +1296,12 @@ func alongPlot(d *Document, r *Route, conductor int, which string, narrow bool) 
 		ylabel += ", RMS"
 	}
 	ylabel += " (A)"
-	if which == "depth" {
+	switch which {
+	case "depth":
 		title = "Depth along the route"
 		ylabel = "depth below " + depthRefShort(d) + " (m)"
+	case "phase":
+		title, ylabel = "Phase along the route", "phase of the current (°)"
 	}
 	xlabel := "chainage (m)"
 	if conductor > 0 {
@@ -1288,18 +1323,44 @@ func alongPlot(d *Document, r *Route, conductor int, which string, narrow bool) 
 		// The used stations joined solidly where they are neighbours,
 		// and by a dotted line across stations not used: drawn solid
 		// across three failed fits it read as a steady current measured
-		// where the report says none could be (found in review).
+		// where the report says none could be (found in review). On a
+		// route walked again at another current the line joins each
+		// station's repeats pooled at the first walk's level (endLevel,
+		// endPhase), one point a station.
+		lx, ly, lacross := x, y, across
+		if r.FirstWalk != "" && which != "depth" {
+			lx, ly, lacross = nil, nil, nil
+			for k := 0; k < len(x); {
+				j := k + 1
+				gap := across[k]
+				for j < len(x) && math.Abs(x[j]-x[k]) < r.RepeatGap {
+					gap = gap || across[j]
+					j++
+				}
+				v := y[k]
+				switch which {
+				case "current":
+					v, _ = r.endLevel(used[k])
+				case "phase":
+					if ph, _, ok := r.endPhase(used[k]); ok {
+						v = y[k] + wrapDeg(ph-y[k])
+					}
+				}
+				lx, ly, lacross = append(lx, x[k]), append(ly, v), append(lacross, gap)
+				k = j
+			}
+		}
 		var gapNamed bool
-		for k0 := 0; k0 < len(x); {
+		for k0 := 0; k0 < len(lx); {
 			k1 := k0 + 1
-			for k1 < len(x) && !across[k1] {
+			for k1 < len(lx) && !lacross[k1] {
 				k1++
 			}
-			if _, err := polyline(p, xy{x[k0:k1], y[k0:k1]}, colFit, 1); err != nil {
+			if _, err := polyline(p, xy{lx[k0:k1], ly[k0:k1]}, colFit, 1); err != nil {
 				return nil, err
 			}
-			if k1 < len(x) {
-				l, err := polyline(p, xy{x[k1-1 : k1+1], y[k1-1 : k1+1]}, colFit, 1, 1.5, 2.5)
+			if k1 < len(lx) {
+				l, err := polyline(p, xy{lx[k1-1 : k1+1], ly[k1-1 : k1+1]}, colFit, 1, 1.5, 2.5)
 				if err != nil {
 					return nil, err
 				}
@@ -1314,7 +1375,23 @@ func alongPlot(d *Document, r *Route, conductor int, which string, narrow bool) 
 		if err != nil {
 			return nil, err
 		}
-		p.Legend.Add("estimate, ±2σ", s)
+		name := "estimate, ±2σ"
+		if levelled {
+			name = "at the level of " + firstWalkName(r.FirstWalk) + ", ±2σ"
+			if narrow {
+				name = "at the first walk's level, ±2σ"
+			}
+		}
+		p.Legend.Add(name, s)
+		if levelled && later.Len() > 0 {
+			// The later walks as they read, unjoined: their own
+			// currents, which hold for their own time only.
+			s, err := scatter(p, later, draw.TriangleGlyph{}, colFit, 3)
+			if err != nil {
+				return nil, err
+			}
+			p.Legend.Add("later walks as read (not joined)", s)
+		}
 	}
 	for _, m := range []struct {
 		at    xy
@@ -1363,8 +1440,10 @@ func alongPlot(d *Document, r *Route, conductor int, which string, narrow bool) 
 		}
 		padY(p, 0.05, 0.08)
 	}
-	// Mark current steps where their findings place them.
-	if which == "current" {
+	// Mark current steps where their findings place them (on the phase
+	// plot too: where current leaves at an angle to the line current the
+	// phase turns there).
+	if which != "depth" {
 		padY(p, 0.05, 0.1)
 		lo, hi := p.Y.Min, p.Y.Max
 		for _, f := range d.Findings {

@@ -317,8 +317,9 @@ func trackSummary(d *Document, t *Track) string {
 	}
 	if len(used) > 0 {
 		a, b := used[0], used[len(used)-1]
-		line += fmt.Sprintf("; %s %s A%s at %s and %s A%s at %s",
-			cur, pm(a.Current, a.CurrentSigma), stationPhase(d, a), a.Key, pm(b.Current, b.CurrentSigma), stationPhase(d, b), b.Key)
+		r := &t.Route
+		line += fmt.Sprintf("; %s %s at %s and %s at %s%s",
+			cur, endCurrent(d, r, &a), r.endStation(&a).Key, endCurrent(d, r, &b), r.endStation(&b).Key, firstWalkClause(r))
 		if !t.Route.PairNet {
 			line += crossingFlow(used)
 		}

@@ -105,6 +105,11 @@ type Finding struct {
 	Position [3]float64
 	// Keys are the groups involved, in route order.
 	Keys []string
+	// Repeats gives, for a station of Keys combined with its repeats
+	// (a route walked again: "T11 with day2.csv:T11", repeats.go), the
+	// keys of those repeats, by the station's key; nil when none. The
+	// steps name and use them.
+	Repeats map[string][]string
 	// Message is one plain sentence for the report.
 	Message string
 	// Values are the numbers behind the finding.

@@ -7,8 +7,10 @@ import (
 )
 
 // quality reports stations whose fit failed, is poor or ambiguous, and
-// stations better explained by a dipole.
-func quality(ps []Placed, set *Settings) []Finding {
+// stations better explained by a dipole. steps are the route's
+// current-step findings: a poor fit within a step's bracket names the
+// step as the likely cause of its misfit (stepCause).
+func quality(ps []Placed, set *Settings, steps []Finding) []Finding {
 	var out []Finding
 	maxChi := set.maxReducedChi2()
 	for i := range ps {
@@ -48,7 +50,7 @@ func quality(ps []Placed, set *Settings) []Finding {
 				Position: p.Point,
 				Keys:     []string{p.Key},
 				Message: fmt.Sprintf("fit at %s misses %.3g nT RMS of a %.0f nT signal (%.2g%%), more than the noise allows (chi-square per degree of freedom %.3g): the straight-line model is only approximate here (%s); the estimates hold to about that fraction, but their sigmas may be optimistic",
-					at(p, len(ps) == 1), p.RMS, p.Signal, 100*p.RMS/p.Signal, chi, orDefault(bend, "a bend, a change of depth or a nearby object")),
+					at(p, len(ps) == 1), p.RMS, p.Signal, 100*p.RMS/p.Signal, chi, orDefault(bend, orDefault(stepCause(p, steps), "a bend, a change of depth or a nearby object"))),
 				Values: vals,
 			})
 			continue
@@ -391,4 +393,30 @@ func orDefault(s, def string) string {
 		return def
 	}
 	return s
+}
+
+// stepCause names the current step among steps (current-step findings)
+// whose bracket holds station p as the likely cause of p's misfit: near
+// where current leaves or joins the conductor its current changes along
+// the stretch the traverse sees (the current's path away from it, and
+// the line's own current, end there), which one straight infinite line
+// cannot follow. Five traverses beside 3 A leaving a 20 A AC line each
+// read "a bend, a change of depth or a nearby object" below the finding
+// that placed the fault among them (found in review). Empty when no
+// step's bracket holds p.
+func stepCause(p *Placed, steps []Finding) string {
+	for i := range steps {
+		f := &steps[i]
+		if f.Kind != KindCurrentStep || p.Chainage < f.From || p.Chainage > f.To {
+			continue
+		}
+		where := fmt.Sprintf("between chainage %.1f and %.1f m", f.From, f.To)
+		for _, v := range f.Values {
+			if v.Name == "location (chainage)" && finite(v.Value) {
+				where = fmt.Sprintf("at chainage %s m", PlusMinus(v.Value, v.Sigma))
+			}
+		}
+		return fmt.Sprintf("most likely the change of current the current-step finding places %s: the current changes along the conductor there, which one straight line does not follow; else a bend, a change of depth or a nearby object", where)
+	}
+	return ""
 }

@@ -331,9 +331,12 @@ func combineRepeats(ps []Placed, gap float64) []Placed {
 func combine(use []*Placed) Placed {
 	sort.SliceStable(use, func(a, b int) bool { return use[a].Index < use[b].Index })
 	c := *use[0]
-	c.also = nil
+	c.also, c.alsoKeys = nil, nil
 	for _, p := range use[1:] {
 		c.also = append(c.also, label(p))
+		if p.Key != "" {
+			c.alsoKeys = append(c.alsoKeys, p.Key)
+		}
 	}
 	ref := use[0].Phase
 	// mean returns the inverse-variance mean of v over use, its sigma

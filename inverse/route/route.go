@@ -36,8 +36,9 @@ type Placed struct {
 	// whole (endshare.go).
 	endShare, endShareSigma float64
 	// also names the repeats of the station combined into this copy of
-	// it for the steps (repeats.go); nil otherwise.
-	also []string
+	// it for the steps (repeats.go), and alsoKeys gives their keys (those
+	// that have one); nil otherwise.
+	also, alsoKeys []string
 	// FirstWalkCurrent and FirstWalkCurrentSigma are, when the route was
 	// walked more than once at currents that differ by one ratio or one
 	// change per walk (Route.FirstWalk), the station's current brought to
@@ -140,10 +141,11 @@ func Build(stations []Station, set *Settings) (*Route, error) {
 	st, notes := steps(one, set, r.ModelScatter, r.ScatterWidening)
 	// AC: changes of phase sized as phasors (phasorstep.go).
 	st = phasorSteps(one, st, set, r.ModelScatter)
+	addRepeats(st, one)
 	r.Findings = append(r.Findings, st...)
 	r.Findings = append(r.Findings, ends...)
 	r.Findings = append(r.Findings, cover(r.Stations, set)...)
-	for _, f := range quality(r.Stations, set) {
+	for _, f := range quality(r.Stations, set, st) {
 		if f.Kind == KindPoorFit && len(f.Keys) == 1 && notes[f.Keys[0]] != "" {
 			f.Message += notes[f.Keys[0]]
 		}
@@ -541,4 +543,33 @@ func at(p *Placed, single bool) string {
 		return label(p)
 	}
 	return fmt.Sprintf("%s (chainage %.1f m)", label(p), p.Chainage)
+}
+
+// addRepeats records in each finding of fs, found on the stations one
+// (repeats combined, combineRepeats), the repeats combined into the
+// stations it names (Finding.Repeats): a step "between T11 with
+// d2.csv:T11 and T12 with d2.csv:T12" listed only T11 and T12 as its
+// groups, leaving out the repeats whose currents it used (found in
+// review).
+func addRepeats(fs []Finding, one []Placed) {
+	also := map[string][]string{}
+	for i := range one {
+		if p := &one[i]; p.Key != "" && len(p.alsoKeys) > 0 {
+			also[p.Key] = p.alsoKeys
+		}
+	}
+	if len(also) == 0 {
+		return
+	}
+	for i := range fs {
+		f := &fs[i]
+		for _, k := range f.Keys {
+			if a := also[k]; a != nil {
+				if f.Repeats == nil {
+					f.Repeats = map[string][]string{}
+				}
+				f.Repeats[k] = append([]string(nil), a...)
+			}
+		}
+	}
 }

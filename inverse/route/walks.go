@@ -61,8 +61,8 @@ type walkLevel struct {
 	name  string
 	start time.Time // its earliest station's Start; zero when not known
 	first int       // the smallest Index of its stations
-	// level and sigma are the inverse-variance mean of its repeated
-	// stations' currents, A; delta and deltaSigma its change from the
+	// level and sigma are the mean of its repeated stations' currents,
+	// each set weighed alike for every walk (see walksDiffer), A; delta and deltaSigma its change from the
 	// first walk over the sets both hold, A; sets counts those sets.
 	level, sigma      float64
 	delta, deltaSigma float64
@@ -201,16 +201,33 @@ func walksDiffer(ps []Placed, gap float64) ([]Finding, *walkScaling) {
 	})
 	ref := order[0]
 	// Each walk's level over the sets it holds, and its change from the
-	// first walk over the sets both hold.
+	// first walk over the sets both hold. The levels weigh each set alike
+	// for every walk, by one over the sum of its walks' variances: the
+	// change weighs a set by one over the sum of the two walks', so where
+	// two walks hold every set the levels printed differ by the change
+	// printed. Each walk's own inverse-variance mean weighed the sets
+	// otherwise for each walk, and "24.7621 A in d1.csv and 27.2886 A in
+	// d2.csv, a change of 2.4907 ± 0.0066 A" did not add up (27.2886 -
+	// 24.7621 = 2.5265 A, 5.5 sigma off; found in review).
+	common := make([]float64, len(perSet))
+	for i, m := range perSet {
+		var v float64
+		for _, e := range m {
+			v += 1 / e.w
+		}
+		common[i] = 1 / v
+	}
 	for _, wl := range order {
-		var sw, swv, dw, dwv float64
-		for _, m := range perSet {
+		var sc, scv, scc, dw, dwv float64
+		for i, m := range perSet {
 			e, ok := m[wl.name]
 			if !ok {
 				continue
 			}
-			sw += e.w
-			swv += e.w * e.v
+			c := common[i]
+			sc += c
+			scv += c * e.v
+			scc += c * c / e.w
 			if wl == ref {
 				continue
 			}
@@ -223,7 +240,7 @@ func walksDiffer(ps []Placed, gap float64) ([]Finding, *walkScaling) {
 			dwv += w * (e.v - r.v)
 			wl.sets++
 		}
-		wl.level, wl.sigma = swv/sw, math.Sqrt(1/sw)
+		wl.level, wl.sigma = scv/sc, math.Sqrt(scc)/sc
 		if dw > 0 {
 			wl.delta, wl.deltaSigma = dwv/dw, math.Sqrt(1/dw)
 		}
