@@ -18,7 +18,8 @@ func fitWithRSS(rss float64, dof int) *inverse.Result {
 // (the reference), a ramp whose fit meets the noise is kept; one that
 // leaves its fit missing by 80 times the noise variance, having taken out
 // a fifth of the misfit beyond it (as the ramps beside a fault did), is
-// taken back; one that took out 70% of it is kept.
+// taken back; ones that took out 45% (as beside the pair with a street
+// light) or 70% of it are kept.
 func TestDropMisfitRamps(t *testing.T) {
 	const dof = 100
 	var gs []*group
@@ -29,13 +30,13 @@ func TestDropMisfitRamps(t *testing.T) {
 		key  string
 		with float64 // the ramped fit's residual variance, nT²
 		kept bool
-	}{{"meets the noise", 1.0, true}, {"a fifth", 80, false}, {"most", 30, true}} {
+	}{{"meets the noise", 1.0, true}, {"a fifth", 80, false}, {"45%", 55, true}, {"most", 30, true}} {
 		res0 := fitWithRSS(100*dof, dof)
 		gs = append(gs, &group{key: c.key, res: fitWithRSS(c.with*dof, dof), res0: res0, wsigma: []float64{1},
 			ramp: &groupRamp{hz: 1e-4, sigma: 1e-5, held: rss(res0), heldDOF: dof}})
 	}
 	dropMisfitRamps(gs)
-	for i, c := range []bool{true, false, true} {
+	for i, c := range []bool{true, false, true, true} {
 		g := gs[4+i]
 		if kept := g.ramp != nil; kept != c {
 			t.Errorf("%s: ramp kept %v, want %v", g.key, kept, c)
