@@ -1930,6 +1930,8 @@ feed:
 		bar.Finish()
 	}
 	if err == nil {
+		dropMisfitRamps(sv.groups)
+		dropLoneRamps(sv.groups)
 		dropWalkRamps(sv.groups)
 		for _, g := range sv.groups {
 			looseTurnBound(g)
