@@ -260,12 +260,12 @@ func detect(u []*Placed, set *Settings) *detection {
 			// of the levels either side by a sigma of its trend or more,
 			// neither the largest single one, that those levels show
 			// beyond spanK and beyond the largest single interval's
-			// significance, is taken first: left in the trends, the two intervals of a
-			// 0.4 A loss under a traverse (the station between reading
-			// half of it) passed for a steady fall to their neighbours,
-			// whose differences then stood out as rises either side of
-			// it, and the loss itself was lost (found in review,
-			// TestLossUnderTraverseFound).
+			// significance, is taken first. Left in the trends, the two
+			// intervals of a 0.4 A loss under a traverse (the station
+			// between reading half of it) passed for a steady fall to
+			// their neighbours, whose differences then stood out as
+			// rises either side of it, and the loss itself was lost
+			// (found in review, TestLossUnderTraverseFitted).
 			if w > 0 {
 				sj, sz := -1, math.Max(spanK(k, m-1), bestZ)
 				for j := 0; j+1 < m; j++ {
