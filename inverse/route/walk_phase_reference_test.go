@@ -13,12 +13,12 @@ import (
 // simulated truth): day1 with the current up before chainage 52.5 m and
 // down after it, day2 a day later with up2 and down2, every phase of
 // day2 read offDeg later (the phase of the current against the logger's
-// clock on another day), its stations 3 mm off day1's, named
+// clock on another day), read with sigmas of sa A and sp degrees, its stations 3 mm off day1's, named
 // "day2.csv:T01" and so on; the walks named after their logs.
-func phaseDays(seed uint64, up, down, up2, down2 complex128, offDeg float64) []Station {
+func phaseDays(seed uint64, up, down, up2, down2 complex128, offDeg, sa, sp float64) []Station {
 	rng := rand.New(rand.NewPCG(seed, 1616))
-	d1 := phasorRoute(rng, up, down, 0.004, 0.004, 0)
-	d2 := phasorRoute(rng, up2, down2, 0.004, 0.004, 0)
+	d1 := phasorRoute(rng, up, down, sa, sp, 0)
+	d2 := phasorRoute(rng, up2, down2, sa, sp, 0)
 	for i := range d1 {
 		d1[i].Walk = "day1.csv"
 		d2[i].Walk = "day2.csv"
@@ -53,7 +53,7 @@ func TestWalkPhaseOffsetKeepsLoss(t *testing.T) {
 	for _, off := range []float64{40, -170} {
 		var pulls []float64
 		for seed := uint64(1); seed <= 30; seed++ {
-			r, err := Build(phaseDays(seed, up, down, up, down, off), nil)
+			r, err := Build(phaseDays(seed, up, down, up, down, off, 0.004, 0.004), nil)
 			if err != nil {
 				t.Fatal(err)
 			}
@@ -76,7 +76,7 @@ func TestWalkPhaseOffsetKeepsLoss(t *testing.T) {
 			}
 			// The same walks at one phase reference: the loss as found
 			// there, whatever the offset.
-			same, err := Build(phaseDays(seed, up, down, up, down, 0), nil)
+			same, err := Build(phaseDays(seed, up, down, up, down, 0, 0.004, 0.004), nil)
 			if err != nil {
 				t.Fatal(err)
 			}
@@ -120,7 +120,8 @@ func TestWalkPhaseOffsetKeepsLoss(t *testing.T) {
 // TestWalkPhaseLossChanged: day1 turns from 30 A at 0° to 30 A at 5°
 // at chainage 52.5 m (2.62 A leaving), day2 a day later, its phase
 // reference 40° on, from 30 A at 0° to 30 A at 45° (22.96 A leaving;
-// simulated truth): the loss grew between the walks. Over 10 seeds, a
+// simulated truth; sigmas 0.03 A and 0.06°): the loss grew between the
+// walks. Over 10 seeds, a
 // caution says the phases differ along the route, the turn changed by
 // 40° (within 4 sigma) between stations either side of 52.5 m, and the
 // step is day1's loss (within 4 sigma), not an average of the two.
@@ -130,7 +131,7 @@ func TestWalkPhaseLossChanged(t *testing.T) {
 	up, down, down2 := complex(30, 0), 30*deg(5), 30*deg(45)
 	wantMag, _ := lossTruth(up, down)
 	for seed := uint64(1); seed <= 10; seed++ {
-		r, err := Build(phaseDays(seed, up, down, up, down2, 40), nil)
+		r, err := Build(phaseDays(seed, up, down, up, down2, 40, 0.03, 0.06), nil)
 		if err != nil {
 			t.Fatal(err)
 		}
