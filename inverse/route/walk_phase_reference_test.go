@@ -19,7 +19,16 @@ func phaseDays(seed uint64, up, down, up2, down2 complex128, offDeg, sa, sp floa
 	rng := rand.New(rand.NewPCG(seed, 1616))
 	d1 := phasorRoute(rng, up, down, sa, sp, 0)
 	d2 := phasorRoute(rng, up2, down2, sa, sp, 0)
+	return phaseDaysTurning(d1, d2, offDeg, 0)
+}
+
+// phaseDaysTurning names the walks d1 and d2 (phasorRoute) as phaseDays
+// does, day2's phases read offDeg later and turning rampDegPerS more a
+// second along its walk (its day's frequency off the one demodulated at
+// by its own amount; stations 20 s apart).
+func phaseDaysTurning(d1, d2 []Station, offDeg, rampDegPerS float64) []Station {
 	for i := range d1 {
+		d2[i].Phase += rampDegPerS * 20 * float64(i)
 		d1[i].Walk = "day1.csv"
 		d2[i].Walk = "day2.csv"
 		d2[i].Key = "day2.csv:" + d2[i].Key
@@ -163,6 +172,49 @@ func TestWalkPhaseLossChanged(t *testing.T) {
 		mag, ok := valueOf(fs[0], "current leaving")
 		if !ok || math.Abs(mag.Value-wantMag) > 4*mag.Sigma {
 			t.Errorf("seed %d: %+v, want day1's %.4f A: %s", seed, mag, wantMag, fs[0].Message)
+		}
+	}
+}
+
+// TestWalkPhaseDriftKeepsLoss: the 30° turn of TestWalkPhaseOffsetKeepsLoss
+// walked again a day later with its phases 40° on and turning 0.02° a
+// second more along the walk (0.4° a station; its day's frequency 56 µHz
+// further off the one demodulated at; simulated truth), 10 seeds: no
+// caution that the phases differ along the route, the one loss found
+// within 4 sigma of the truth, and the information gives the turn within
+// 4 sigma of 0.02° a second. Before, one offset per walk left the turn as
+// a change along the route (a false caution, the later walk's phases left
+// out), and before that no step was found at all.
+func TestWalkPhaseDriftKeepsLoss(t *testing.T) {
+	up, down := complex(30, 0), 30*deg(30)
+	wantMag, _ := lossTruth(up, down)
+	for seed := uint64(1); seed <= 10; seed++ {
+		rng := rand.New(rand.NewPCG(seed, 1617))
+		d1 := phasorRoute(rng, up, down, 0.01, 0.02, 0)
+		d2 := phasorRoute(rng, up, down, 0.01, 0.02, 0)
+		r, err := Build(phaseDaysTurning(d1, d2, 40, 0.02), nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		var drift *Value
+		for _, f := range walksDifferOf(r) {
+			if f.Severity != SeverityInfo {
+				t.Errorf("seed %d: %s %s", seed, f.Severity, f.Message)
+			}
+			if v, ok := valueOf(f, "phase drift day2.csv"); ok {
+				drift = &v
+			}
+		}
+		if drift == nil || math.Abs(drift.Value-0.02) > 4*drift.Sigma {
+			t.Errorf("seed %d: drift %+v, want 0.02°/s", seed, drift)
+		}
+		fs := findings(r, KindCurrentStep)
+		if len(fs) != 1 {
+			t.Errorf("seed %d: %d current steps, want 1", seed, len(fs))
+			continue
+		}
+		if mag, ok := valueOf(fs[0], "current leaving"); !ok || math.Abs(mag.Value-wantMag) > 4*mag.Sigma {
+			t.Errorf("seed %d: %+v, want %.4f A", seed, mag, wantMag)
 		}
 	}
 }
