@@ -381,10 +381,25 @@ func combine(use []*Placed) Placed {
 	c.Depth, c.DepthSigma, chi2 = mean(func(p *Placed) float64 { return p.Depth }, func(p *Placed) float64 { return p.DepthSigma })
 	c.DepthSigma = widen(c.DepthSigma, chi2)
 	if c.AC {
+		// The phases of walks left out of the combined phase (phaseOut:
+		// a later walk's not the first's plus one offset, walkphase.go)
+		// are not averaged in; the others' are already referred to the
+		// first walk's.
+		all := use
+		var in []*Placed
+		for _, p := range use {
+			if !p.phaseOut {
+				in = append(in, p)
+			}
+		}
+		if len(in) > 0 {
+			use = in
+		}
 		var ph float64
 		ph, c.PhaseSigma, chi2 = mean(func(p *Placed) float64 { return ref + wrapDeg(p.Phase-ref) }, func(p *Placed) float64 { return p.PhaseSigma })
 		c.Phase = wrapDeg(ph)
 		c.PhaseSigma = widen(c.PhaseSigma, chi2)
+		use = all
 	}
 	var ch float64
 	var pt [3]float64

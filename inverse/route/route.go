@@ -39,6 +39,10 @@ type Placed struct {
 	// it for the steps (repeats.go), and alsoKeys gives their keys (those
 	// that have one); nil otherwise.
 	also, alsoKeys []string
+	// phaseOut leaves the station's phase out of its repeats' combined
+	// phase (a later walk whose phases are not the first walk's plus one
+	// offset: walkphase.go).
+	phaseOut bool
 	// FirstWalkCurrent and FirstWalkCurrentSigma are, when the route was
 	// walked more than once at currents that differ by one ratio or one
 	// change per walk (Route.FirstWalk), the station's current brought to
@@ -133,6 +137,10 @@ func Build(stations []Station, set *Settings) (*Route, error) {
 			r.Stations[k].FirstWalkCurrent, r.Stations[k].FirstWalkCurrentSigma = pool[k].Current, pool[k].CurrentSigma
 		}
 	}
+	// AC: each later walk's phases referred to the first walk's by one
+	// offset (walkphase.go).
+	pf, pool := walkPhases(pool, repeatGap(r.Stations))
+	r.Findings = append(r.Findings, pf...)
 	one := combineRepeats(pool, repeatGap(r.Stations))
 	// Stations before a named end read its share of the field (endshare.go).
 	one = endCorrected(one)
