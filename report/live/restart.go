@@ -252,7 +252,9 @@ func (w *assetWorker) applyRestart(req *RestartStatus, rev uint64) error {
 		w.proc.prev = map[string]float64{}
 		w.proc.prevEnd, w.proc.frozen = nil, nil
 		w.pending, w.pendDur = nil, 0
-		w.ck = checkpoint{Start: req.Start, Revision: w.ck.Revision + 1, Restart: req.ID}
+		// The silence already alarmed is the same silence after the
+		// re-read: it is not alarmed again (silenceAtStart).
+		w.ck = checkpoint{Start: req.Start, Revision: w.ck.Revision + 1, Restart: req.ID, SilentSince: w.ck.SilentSince}
 		w.proc.revision = w.ck.Revision
 		if err := w.saveCheckpoint(); err != nil {
 			return err

@@ -91,6 +91,11 @@ type assetWorker struct {
 	// silenceAtStart already set from the broker's time of the last one,
 	// so that a takeover does not date a silence from its own start.
 	backlogTo time.Time
+	// backlogSeq is that batch's data stream sequence: until the worker
+	// has read up to it (a re-read after a restart request, a takeover
+	// behind), the asset's silent alarm waits (checkSilence), so that it
+	// is not placed among windows of data still to be read.
+	backlogSeq uint64
 	// stall is when the worker last found the stream holding data for the
 	// asset that its consumer had not delivered while an idle close was
 	// due (see storedAhead); zero when it is not waiting for such data.
@@ -674,7 +679,7 @@ func (w *assetWorker) silenceAtStart(ctx context.Context) (time.Time, bool) {
 	if ds, err := w.svc.stores.JS.Stream(ctx, broker.StreamData); err == nil {
 		if m, err := ds.GetLastMsgForSubject(ctx, broker.DataFilter(w.asset.Name)); err == nil {
 			last = m.Time
-			w.backlogTo = m.Time
+			w.backlogTo, w.backlogSeq = m.Time, m.Sequence
 		} else if !errors.Is(err, jetstream.ErrMsgNotFound) {
 			w.log.Warn("last data time not readable: silence counted from now", "err", err)
 		}
@@ -707,6 +712,9 @@ func (w *assetWorker) checkSilence(now time.Time) error {
 	quiet := now.Sub(w.lastData)
 	if w.silent || after <= 0 || quiet < after {
 		return nil
+	}
+	if w.backlogSeq > 0 && w.asm.lastSeq < w.backlogSeq {
+		return nil // stored data still to read: the silence comes after it
 	}
 	w.silent = true
 	L := w.asset.Window.Seconds()
