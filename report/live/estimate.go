@@ -76,6 +76,11 @@ type Estimate struct {
 	// removed (data_retention, data_max_bytes) before the worker read it:
 	// what was lost (the message of the asset's data-lost alarm).
 	DataLost string `json:"data_lost,omitempty"`
+	// AfterGap is set on the first window with currents after a gap: the
+	// seconds between the end of the previous window with currents and
+	// this window's start (a data outage, or windows that failed). A step
+	// alarm of this window compares with that earlier window and says so.
+	AfterGap float64 `json:"after_gap_s,omitempty"`
 	// Closed says why the window closed: complete, grace or idle.
 	Closed string `json:"closed"`
 	Worker string `json:"worker"`

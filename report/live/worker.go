@@ -25,7 +25,10 @@ type checkpoint struct {
 	ResumeSeq uint64             `json:"resume_seq"` // first UC_DATA sequence to read again
 	LastSeq   uint64             `json:"last_seq"`   // last UC_DATA sequence examined
 	Prev      map[string]float64 `json:"prev"`       // last currents, for the step alarm
-	Worker    string             `json:"worker"`
+	// PrevAt is the end of the window Prev was taken from (absent in a
+	// checkpoint written before it was kept: no gap is then judged).
+	PrevAt float64 `json:"prev_at,omitempty"`
+	Worker string  `json:"worker"`
 	// Start records the site-file start that placed the first checkpoint
 	// (empty when the asset began with everything retained).
 	Start string `json:"start,omitempty"`
@@ -188,6 +191,7 @@ func (w *assetWorker) runAsset(ctx context.Context) error {
 		for k, v := range w.ck.Prev {
 			w.proc.prev[k] = v
 		}
+		w.proc.prevAt = w.ck.PrevAt
 	} else if !errors.Is(err, jetstream.ErrKeyNotFound) {
 		return fmt.Errorf("live: asset %s: checkpoint: %w", w.asset.Name, err)
 	} else if err := w.placeStart(bg); err != nil {
@@ -1170,6 +1174,7 @@ func (w *assetWorker) saveCheckpoint() error {
 	w.ck.ResumeSeq = resume
 	w.ck.LastSeq = w.asm.lastSeq
 	w.ck.Prev = w.proc.prev
+	w.ck.PrevAt = w.proc.prevAt
 	w.ck.Worker = w.svc.id
 	data, _ := json.Marshal(w.ck)
 	ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
