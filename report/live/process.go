@@ -32,6 +32,9 @@ type processor struct {
 	// frozen holds, per sensor, the reading it repeated on every axis
 	// through the previous window (stuckAxis).
 	frozen map[string][3]float64
+	// active holds the latched conditions that still hold, by
+	// latchKey (see latch); checkpointed as checkpoint.Ongoing.
+	active map[string]*latchedState
 	// prevAt is the end of the window prev was taken from (0: not
 	// known), so that a step across a gap says so (currentAlarms).
 	prevAt float64

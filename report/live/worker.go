@@ -28,7 +28,11 @@ type checkpoint struct {
 	// PrevAt is the end of the window Prev was taken from (absent in a
 	// checkpoint written before it was kept: no gap is then judged).
 	PrevAt float64 `json:"prev_at,omitempty"`
-	Worker string  `json:"worker"`
+	// Ongoing holds the latched alarms' conditions that still hold (see
+	// latch), so that a successor neither raises them again nor loses
+	// their clearing.
+	Ongoing map[string]*latchedState `json:"ongoing,omitempty"`
+	Worker  string                   `json:"worker"`
 	// Start records the site-file start that placed the first checkpoint
 	// (empty when the asset began with everything retained).
 	Start string `json:"start,omitempty"`
@@ -192,6 +196,7 @@ func (w *assetWorker) runAsset(ctx context.Context) error {
 			w.proc.prev[k] = v
 		}
 		w.proc.prevAt = w.ck.PrevAt
+		w.proc.active = w.ck.Ongoing
 	} else if !errors.Is(err, jetstream.ErrKeyNotFound) {
 		return fmt.Errorf("live: asset %s: checkpoint: %w", w.asset.Name, err)
 	} else if err := w.placeStart(bg); err != nil {
@@ -1098,6 +1103,7 @@ func (w *assetWorker) publishWindow(win *window, r *reduced) error {
 	}
 	t1 := time.Now()
 	est, alarms := w.proc.solve(win, r)
+	alarms = w.proc.latch(win, est, alarms)
 	if w.ck.DataLost != "" && win.End > w.ck.DataLostAt {
 		est.DataLost = w.ck.DataLost
 	}
@@ -1136,7 +1142,7 @@ func (w *assetWorker) publishWindow(win *window, r *reduced) error {
 		met.estimates.WithLabelValues(w.asset.Name, "published").Inc()
 	}
 	for _, al := range alarms {
-		if err := w.publishAlarm(al, id+"/"+al.Kind+"/"+al.Subject); err != nil {
+		if err := w.publishAlarm(al, alarmID(id, al)); err != nil {
 			return err
 		}
 	}
@@ -1175,6 +1181,7 @@ func (w *assetWorker) saveCheckpoint() error {
 	w.ck.LastSeq = w.asm.lastSeq
 	w.ck.Prev = w.proc.prev
 	w.ck.PrevAt = w.proc.prevAt
+	w.ck.Ongoing = w.proc.active
 	w.ck.Worker = w.svc.id
 	data, _ := json.Marshal(w.ck)
 	ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
