@@ -25,6 +25,7 @@ type replayOptions struct {
 	format   string
 	now      bool
 	shift    float64
+	resume   bool
 	maxAhead time.Duration
 	maxBytes int
 	user     string
@@ -55,7 +56,9 @@ broker's duplicate window (two minutes) is not stored twice (message ids),
 so an interrupted replay can be run again at once; repeated later, it is
 stored again and the pipeline refuses it as late or out of order (no
 estimate is made twice, but a window the interruption cut short stays
-partial). With --now the log is shifted by whole minutes, so windows line
+partial, and the refused batches fill the dead-letter streams): then
+give --resume, which sends only each sensor's batches after the last
+sample the broker holds for it. With --now the log is shifted by whole minutes, so windows line
 up as in the log; times more than --max-ahead ahead of the clock are held
 back until they are not, since the pipeline refuses them.
 
@@ -85,6 +88,7 @@ README.md):
 			fs.StringVar(&o.format, "format", "json", "payload encoding: json or arrow")
 			fs.BoolVar(&o.now, "now", false, "shift times by whole minutes so the log starts within the last minute (makes an old log look live)")
 			fs.Float64Var(&o.shift, "shift", 0, "add `S` seconds to every time")
+			fs.BoolVar(&o.resume, "resume", false, "send only each sensor's batches after the last sample the broker holds for it: the rest of a replay cut short, also after the broker's two-minute duplicate window")
 			fs.DurationVar(&o.maxAhead, "max-ahead", time.Hour, "never send times more than `DURATION` (less a minute) ahead of the clock: the site file's max_ahead, beyond which the pipeline refuses batches; a log shifted with --now and replayed faster than real time is slowed to the clock there (0: no limit)")
 			fs.StringVar(&o.user, "user", "", "broker user")
 			fs.StringVar(&o.password, "password", "", "broker password")
@@ -130,6 +134,11 @@ func runReplay(ctx context.Context, o *replayOptions, fs *pflag.FlagSet, args []
 	if o.now && o.shift != 0 {
 		return usageErrorf("give --now or --shift, not both")
 	}
+	if o.now && o.resume {
+		// --now shifts by the clock at each run: a second run's times
+		// are not the first's.
+		return usageErrorf("give --resume without --now: --now shifts the log by the clock of each run, so the rest would not line up with what was stored; give the first run's shift with --shift")
+	}
 	batches, warns, err := replayBatches(ctx, o, fs, args[0])
 	if err != nil {
 		return err
@@ -140,7 +149,7 @@ func runReplay(ctx context.Context, o *replayOptions, fs *pflag.FlagSet, args []
 	if err := checkBatchBytes(args[0], batches, o.format, o.maxBytes, o.batch); err != nil {
 		return err
 	}
-	set := &broker.ReplaySettings{Speed: o.speed, Encoding: enc, Shift: o.shift, MaxAhead: o.maxAhead,
+	set := &broker.ReplaySettings{Speed: o.speed, Encoding: enc, Shift: o.shift, MaxAhead: o.maxAhead, Resume: o.resume,
 		Notify: func(msg string) { fmt.Fprintf(stderr, "replay: %s\n", msg) }}
 	if o.maxAhead > 2*replayAheadMargin {
 		set.MaxAhead = o.maxAhead - replayAheadMargin
@@ -170,6 +179,9 @@ func runReplay(ctx context.Context, o *replayOptions, fs *pflag.FlagSet, args []
 	st, err := broker.Replay(ctx, js, batches, set)
 	if err != nil {
 		return err
+	}
+	if o.resume {
+		fmt.Fprintf(stdout, "skipped %d batches the broker already held (--resume)\n", st.Resumed)
 	}
 	fmt.Fprintf(stdout, "replayed %d samples in %d batches for asset %s, sensors %v, times %.3f to %.3f (%d already stored)\n",
 		st.Samples, st.Batches, o.asset, st.Sensors, st.From, st.To, st.Duplicates)

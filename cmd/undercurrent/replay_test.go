@@ -69,3 +69,19 @@ func TestReplayWarnsOfFieldAboveBound(t *testing.T) {
 		t.Errorf("clean log warned: %s", out)
 	}
 }
+
+// --resume sends what comes after the broker's last stored sample of each
+// sensor, in the log's own times plus --shift: --now, which shifts by the
+// clock of each run, would not line the rest up with the first run, so
+// the two together are refused, naming the remedy.
+func TestReplayResumeRefusedWithNow(t *testing.T) {
+	dir := t.TempDir()
+	log := filepath.Join(dir, "short.csv")
+	if err := os.WriteFile(log, []byte("time,bx,by,bz,group\n0,1,2,3,s1\n0.001,1,2,3,s1\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	code, _, errOut := cli(t, "replay", log, "--asset", "fenwick-lane", "--now", "--resume", "--broker", "nats://127.0.0.1:1", "--wait", "1ms")
+	if code != 2 || !strings.Contains(errOut, "--resume without --now") || !strings.Contains(errOut, "--shift") {
+		t.Errorf("exit %d, %q: want a usage refusal of --now with --resume", code, errOut)
+	}
+}

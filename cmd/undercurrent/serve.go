@@ -62,7 +62,10 @@ HTTP API (loopback by default): /healthz, /readyz, /metrics,
 starts (seconds or RFC 3339; from <= start < to), since is when an alarm was
 stored, and a parameter an endpoint does not take is refused; a listing
 returns the first limit results of its range (default 10000, at most
-100000). POST /api/v1/assets/ASSET/recommission and
+100000), and one cut short answers the headers X-Uc-More: true and
+X-Uc-Next-From (the from to ask again with). A lasting condition
+(over-current, imbalance, a silent, stuck or saturated sensor) is alarmed
+once when it begins and once, marked cleared, when it ends. POST /api/v1/assets/ASSET/recommission and
 POST /api/v1/assets/ASSET/restart?start= (re-read the asset from "new", a
 duration back such as "24h", an RFC 3339 time or "retained") need the
 service token.

@@ -2,6 +2,7 @@ package broker
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"math"
 	"sort"
@@ -154,6 +155,12 @@ type ReplaySettings struct {
 	// gateway sending milliseconds), and a log shifted to now and replayed
 	// faster than real time would otherwise run past that limit.
 	MaxAhead time.Duration
+	// Resume skips, per sensor, the batches whose times (after Shift) do
+	// not go past the last sample the data stream holds for the sensor: a
+	// replay cut short sends the rest, also after the broker's two-minute
+	// duplicate window, without storing again what was stored (the
+	// pipeline would refuse those as late, into its dead letters).
+	Resume bool
 }
 
 // ReplayStats summarises a replay.
@@ -164,6 +171,9 @@ type ReplayStats struct {
 	Duplicates int
 	// HeldBack counts batches held back by MaxAhead.
 	HeldBack int
+	// Resumed counts batches not sent because the data stream already
+	// held their times (Resume).
+	Resumed  int
 	Sensors  []string
 	From, To float64 // first and last sample time sent, s
 }
@@ -178,6 +188,25 @@ func Replay(ctx context.Context, js jetstream.JetStream, batches []*Batch, set *
 	st := &ReplayStats{From: math.Inf(1), To: math.Inf(-1)}
 	if len(batches) == 0 {
 		return st, nil
+	}
+	var held map[string]float64
+	if rs.Resume {
+		var err error
+		if held, err = storedUpTo(ctx, js, batches); err != nil {
+			return st, err
+		}
+		var rest []*Batch
+		for _, b := range batches {
+			if h, ok := held[b.Sensor]; ok && b.Time[len(b.Time)-1]+rs.Shift <= h {
+				st.Resumed++
+				continue
+			}
+			rest = append(rest, b)
+		}
+		batches = rest
+		if len(batches) == 0 {
+			return st, nil
+		}
 	}
 	seen := map[string]bool{}
 	wall0 := time.Now()
@@ -227,7 +256,7 @@ func Replay(ctx context.Context, js jetstream.JetStream, batches []*Batch, set *
 				if st.Batches > 0 {
 					stored = fmt.Sprintf("%d of %d batches were stored, up to time %s", st.Batches, len(batches), timeText(st.To))
 				}
-				err = fmt.Errorf("%w: the broker stopped answering (no acknowledgement in %v); %s; run the same replay again once the broker is back to send the rest (batches stored already are not stored twice)", err, publishRetryFor, stored)
+				err = fmt.Errorf("%w: the broker stopped answering (no acknowledgement in %v); %s; to send the rest once the broker is back, run the same replay again with --resume, which skips each sensor's batches up to the last sample the broker holds for it (without --resume, batches stored already are not stored twice only within the broker's two-minute duplicate window; later they are stored again and the pipeline refuses them as late, into its dead letters)", err, publishRetryFor, stored)
 			}
 			return st, err
 		}
@@ -248,4 +277,33 @@ func Replay(ctx context.Context, js jetstream.JetStream, batches []*Batch, set *
 	}
 	sort.Strings(st.Sensors)
 	return st, nil
+}
+
+// storedUpTo returns, per sensor of batches, the last sample time of the
+// last batch the data stream holds for it (sensors without one absent).
+func storedUpTo(ctx context.Context, js jetstream.JetStream, batches []*Batch) (map[string]float64, error) {
+	ds, err := js.Stream(ctx, StreamData)
+	if err != nil {
+		return nil, fmt.Errorf("broker: replay --resume: data stream: %w", err)
+	}
+	out := map[string]float64{}
+	for _, b := range batches {
+		if _, ok := out[b.Sensor]; ok {
+			continue
+		}
+		out[b.Sensor] = math.Inf(-1)
+		m, err := ds.GetLastMsgForSubject(ctx, DataSubject(b.Asset, b.Sensor))
+		if errors.Is(err, jetstream.ErrMsgNotFound) {
+			continue
+		}
+		if err != nil {
+			return nil, fmt.Errorf("broker: replay --resume: last stored batch of sensor %s: %w", b.Sensor, err)
+		}
+		got, err := Decode(m.Subject, m.Header.Get(HeaderContentType), m.Data)
+		if err != nil || got.Len() == 0 {
+			return nil, fmt.Errorf("broker: replay --resume: last stored batch of sensor %s not readable: %v", b.Sensor, err)
+		}
+		out[b.Sensor] = got.Time[got.Len()-1]
+	}
+	return out, nil
 }

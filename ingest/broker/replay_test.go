@@ -236,12 +236,57 @@ func TestReplayBrokerGoneSaysWhatWasStored(t *testing.T) {
 	if err == nil {
 		t.Fatal("the replay succeeded with its broker shut down")
 	}
-	for _, want := range []string{"stopped answering", "1 of 3 batches were stored, up to time 1764650000.009", "run the same replay again"} {
+	// The advice holds also after the broker's duplicate window (two
+	// minutes): it names --resume and says what happens without it.
+	for _, want := range []string{"stopped answering", "1 of 3 batches were stored, up to time 1764650000.009", "run the same replay again with --resume", "only within the broker's two-minute duplicate window"} {
 		if !strings.Contains(err.Error(), want) {
 			t.Errorf("error %q does not say %q", err, want)
 		}
 	}
 	if len(notes) != 1 || !strings.Contains(notes[0], "batch 2 of 3") {
 		t.Errorf("notes %q, want one saying batch 2 of 3 is tried again", notes)
+	}
+}
+
+// A replay cut short and run again with Resume sends only each sensor's
+// batches after the last sample the broker holds for it, so that the
+// rest goes without repeats also once the broker's two-minute duplicate
+// window has passed (the broker would then store the repeats again). The
+// batches are the fixture log's (groupedLog); the truth is which of them
+// the first run sent.
+func TestReplayResumeSendsOnlyTheRest(t *testing.T) {
+	if testing.Short() {
+		t.Skip("starts a broker")
+	}
+	ctx, js, bs := replaySetup(t)
+	// The first run stops after four batches (of whichever sensors).
+	if _, err := Replay(ctx, js, bs[:4], &ReplaySettings{Shift: 10}); err != nil {
+		t.Fatal(err)
+	}
+	held := map[string]float64{}
+	for _, b := range bs[:4] {
+		held[b.Sensor] = b.Time[b.Len()-1]
+	}
+	want := 0
+	for _, b := range bs {
+		if h, ok := held[b.Sensor]; !ok || b.Time[b.Len()-1] > h {
+			want++
+		}
+	}
+	st, err := Replay(ctx, js, bs, &ReplaySettings{Shift: 10, Resume: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if st.Batches != want || st.Resumed != len(bs)-want || st.Duplicates != 0 {
+		t.Errorf("resumed replay: %d sent, %d skipped, %d duplicates; want %d sent, %d skipped, none duplicate", st.Batches, st.Resumed, st.Duplicates, want, len(bs)-want)
+	}
+	info, _ := js.Stream(ctx, StreamData)
+	si, _ := info.Info(ctx)
+	if si.State.Msgs != uint64(len(bs)) {
+		t.Errorf("stream holds %d messages, want %d (each batch once)", si.State.Msgs, len(bs))
+	}
+	// Run again with everything stored: nothing is sent.
+	if st, err := Replay(ctx, js, bs, &ReplaySettings{Shift: 10, Resume: true}); err != nil || st.Batches != 0 || st.Resumed != len(bs) {
+		t.Errorf("third run with everything stored: %+v, %v; want nothing sent", st, err)
 	}
 }

@@ -14,12 +14,13 @@ import (
 	"undercurrent/ingest/broker"
 )
 
-// silentFirstSite is testSiteText with a silence noticed after 1 s and
-// an over-current alarm in every window of the harness's data (currents
-// 1001 + 10 k A, above 1000 A).
+// silentFirstSite is testSiteText with a silence noticed after 1 s, an
+// over-current alarm at the first window of the harness's data (currents
+// 1001 + 10 k A, above 1000 A: raised once, at the onset) and a step
+// alarm in every later window (10 A per window, above 5 A).
 func silentFirstSite(t *testing.T) *Site {
 	text := strings.Replace(testSiteText, `idle = "400ms"`, "idle = \"400ms\"\nsilent_after = \"1s\"", 1)
-	return testSite(t, strings.Replace(text, "max_current = 1035", "max_current = 1000", 1))
+	return testSite(t, strings.Replace(text, "max_current = 1035", "max_current = 1000\n  step = 5", 1))
 }
 
 // Reviewer's case (README's pipeline example, with a wait before the
@@ -71,7 +72,8 @@ func TestFirstSilenceKeepsAlarmsInWindowOrder(t *testing.T) {
 		{"every asset, windows 2-5", "", "", t0 + 1, t0 + 3},
 		{"asset, from window 7", "fenwick-lane", "", t0 + 3.5, math.Inf(1)},
 		{"asset, window 0", "fenwick-lane", "", t0, t0 + 0.5},
-		{"over-current, windows 2-5", "fenwick-lane", AlarmOverCurrent, t0 + 1, t0 + 3},
+		{"step, windows 2-5", "fenwick-lane", AlarmStep, t0 + 1, t0 + 3},
+		{"over-current, window 0", "fenwick-lane", AlarmOverCurrent, t0, t0 + 3},
 	} {
 		res, err := r.svc.Alarms(context.Background(), c.asset, c.kind, c.from, c.to, time.Time{}, 100)
 		if err != nil {

@@ -293,7 +293,7 @@ func mad(v []float64) float64 {
 // against the part before. Over-current takes the largest level, the
 // step alarm the largest change, so a step anywhere in a window is judged
 // whole.
-func (p *processor) currentAlarms(w *window, i int, name string, cur float64, split *windowSplit) []Alarm {
+func (p *processor) currentAlarms(w *window, i int, name string, cur float64, split *windowSplit, gap float64) []Alarm {
 	a := p.asset
 	var out []Alarm
 	peak, what := cur, ""
@@ -316,6 +316,7 @@ func (p *processor) currentAlarms(w *window, i int, name string, cur float64, sp
 	if a.Alarms.Step > 0 {
 		var step float64
 		var msg string
+		within := false // the change is within this window
 		switch {
 		case ok && okEnd && split == nil:
 			// The previous window's change was judged whole there: a
@@ -327,11 +328,19 @@ func (p *processor) currentAlarms(w *window, i int, name string, cur float64, sp
 		if split != nil {
 			b, af := split.before.Current[i], split.after.Current[i]
 			if d := af - b; math.Abs(d) > math.Abs(step) {
+				within = true
 				step, msg = d, fmt.Sprintf("conductor %s changed by %.4g A within the window, from %.4g A to %.4g A at %.3f s", name, d, b, af, split.at)
 			}
 			if d := b - end; ok && math.Abs(d) > math.Abs(step) {
+				within = false
 				step, msg = d, fmt.Sprintf("conductor %s changed by %.4g A from the end of the previous window to the start of this one (%.4g A until %.3f s, then %.4g A)", name, d, b, split.at, af)
 			}
+		}
+		if msg != "" && gap > 0 && !within {
+			// The previous window with currents ended gap seconds
+			// before this one began: the change may have come
+			// gradually in between (a load ramp through an outage).
+			msg += fmt.Sprintf(", which ended %.4g s before this window began (no estimate in between): a change across a gap, which may have come gradually during it, not necessarily a step", gap)
 		}
 		if msg != "" && math.Abs(step) > a.Alarms.Step {
 			out = append(out, p.alarm(w, AlarmStep, name, step, a.Alarms.Step, msg))

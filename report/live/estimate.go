@@ -76,6 +76,14 @@ type Estimate struct {
 	// removed (data_retention, data_max_bytes) before the worker read it:
 	// what was lost (the message of the asset's data-lost alarm).
 	DataLost string `json:"data_lost,omitempty"`
+	// AfterGap is set on the first window with currents after a gap: the
+	// seconds between the end of the previous window with currents and
+	// this window's start (a data outage, or windows that failed). A step
+	// alarm of this window compares with that earlier window and says so.
+	AfterGap float64 `json:"after_gap_s,omitempty"`
+	// Ongoing lists the conditions alarmed once at their onset (see
+	// latchedKinds) that still hold in this window, and for how long.
+	Ongoing []OngoingAlarm `json:"ongoing,omitempty"`
 	// Closed says why the window closed: complete, grace or idle.
 	Closed string `json:"closed"`
 	Worker string `json:"worker"`
@@ -158,6 +166,24 @@ type Alarm struct {
 	// Once a higher revision has processed the window, the alarm listing
 	// shows that revision's alarms of the window instead (see Alarms).
 	Revision int `json:"revision,omitempty"`
+	// Cleared marks the record that a condition alarmed at its onset
+	// (see latchedKinds) no longer holds: its window is the first without
+	// it, Windows counts the windows it held in, Since is the start of the
+	// window it was raised in, and Value is its largest value.
+	Cleared bool    `json:"cleared,omitempty"`
+	Windows int     `json:"windows,omitempty"`
+	Since   float64 `json:"since,omitempty"`
+}
+
+// OngoingAlarm is a condition raised in an earlier window that still
+// holds (Estimate.Ongoing).
+type OngoingAlarm struct {
+	Kind    string `json:"kind"`
+	Subject string `json:"subject,omitempty"`
+	// Since is the start of the window the alarm was raised in, s.
+	Since float64 `json:"since"`
+	// Windows counts the windows it has held in, this one included.
+	Windows int `json:"windows"`
 }
 
 // Alarm kinds.

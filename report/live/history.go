@@ -269,7 +269,9 @@ func clampLimit(limit int) int {
 	if limit <= 0 {
 		return DefaultQueryLimit
 	}
-	return min(limit, MaxQueryLimit)
+	// One more than the HTTP listings accept: they ask for one beyond
+	// their limit to tell whether the range holds more (markMore).
+	return min(limit, MaxQueryLimit+1)
 }
 
 // startOf reads the "start" field shared by estimates and alarms.

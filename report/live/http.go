@@ -44,8 +44,10 @@ import (
 // A parameter given with an empty value (from=, to=, since=, limit=) is
 // refused rather than read as absent.
 // A listing returns at most limit results (default DefaultQueryLimit, at
-// most MaxQueryLimit): the first ones of the range, so a client pages by
-// asking again from just after the last start it received. Queries are
+// most MaxQueryLimit): the first ones of the range, oldest first. A
+// listing the limit cut short says so in its headers: X-Uc-More: true and
+// X-Uc-Next-From, the start of the first window left out, to ask again
+// from (alarms of that window already returned come again). Queries are
 // positioned in the stored streams by the broker and read only about as
 // many messages as they return (see History). A window read again after
 // a restart is listed once, at its highest read revision ("revision" in
@@ -196,6 +198,21 @@ func httpError(w http.ResponseWriter, code int, msg string) {
 	w.Header().Set("Content-Type", "application/json")
 	w.WriteHeader(code)
 	json.NewEncoder(w).Encode(map[string]string{"error": msg})
+}
+
+// Headers of a listing cut at its limit (see markMore).
+const (
+	HeaderMore     = "X-Uc-More"
+	HeaderNextFrom = "X-Uc-Next-From"
+)
+
+// markMore marks a listing that its limit cut short: more results follow
+// in the range, the first of them in the window starting at next (Unix
+// seconds), which is the from to ask again with. Alarms of that window
+// already returned come again.
+func markMore(w http.ResponseWriter, next float64) {
+	w.Header().Set(HeaderMore, "true")
+	w.Header().Set(HeaderNextFrom, strconv.FormatFloat(next, 'f', -1, 64))
 }
 
 func writeJSON(w http.ResponseWriter, v any) {
@@ -414,10 +431,14 @@ func (s *Service) history(w http.ResponseWriter, r *http.Request) {
 		httpError(w, http.StatusBadRequest, fmt.Sprintf("parameter format: %q is neither \"json\" (the default) nor \"csv\"", format))
 		return
 	}
-	ests, err := s.History(r.Context(), a.Name, q.from, q.to, q.limit, q.opts...)
+	ests, err := s.History(r.Context(), a.Name, q.from, q.to, q.limit+1, q.opts...)
 	if err != nil {
 		s.brokerError(w, r, err)
 		return
+	}
+	if len(ests) > q.limit {
+		markMore(w, ests[q.limit].Start)
+		ests = ests[:q.limit]
 	}
 	if format == "csv" {
 		writeEstimatesCSV(w, ests)
@@ -538,10 +559,14 @@ func (s *Service) alarmList(w http.ResponseWriter, r *http.Request) {
 		httpError(w, http.StatusBadRequest, fmt.Sprintf("parameter format: %q is not supported for alarms; the only format is \"json\" (the default)", format))
 		return
 	}
-	list, err := s.Alarms(r.Context(), asset, kind, q.from, q.to, q.since, q.limit, q.opts...)
+	list, err := s.Alarms(r.Context(), asset, kind, q.from, q.to, q.since, q.limit+1, q.opts...)
 	if err != nil {
 		s.brokerError(w, r, err)
 		return
+	}
+	if len(list) > q.limit {
+		markMore(w, list[q.limit].Start)
+		list = list[:q.limit]
 	}
 	writeJSON(w, list)
 }

@@ -32,6 +32,12 @@ type processor struct {
 	// frozen holds, per sensor, the reading it repeated on every axis
 	// through the previous window (stuckAxis).
 	frozen map[string][3]float64
+	// active holds the latched conditions that still hold, by
+	// latchKey (see latch); checkpointed as checkpoint.Ongoing.
+	active map[string]*latchedState
+	// prevAt is the end of the window prev was taken from (0: not
+	// known), so that a step across a gap says so (currentAlarms).
+	prevAt float64
 	worker string
 	// revision is the asset's read revision, copied into every estimate
 	// and alarm; the worker keeps it equal to its checkpoint's.
@@ -602,6 +608,16 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 		}
 	}
 	byName := map[string]complex128{}
+	// A window with currents that does not follow the previous one
+	// (a data outage, failed windows between) is compared with it across
+	// the gap: marked, and its step alarms say so.
+	gap := 0.0
+	if p.prevAt > 0 && len(p.prev) > 0 {
+		if g := w.Start - p.prevAt; g > 0.5*(w.End-w.Start) {
+			gap = g
+			e.AfterGap = g
+		}
+	}
 	for i, name := range p.names {
 		c := ConductorEstimate{Name: name, Current: out.Current[i], CurrentSigma: out.CurrentSigma[i] * scale}
 		if gCur != nil {
@@ -621,8 +637,10 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 		}
 		e.Conductors = append(e.Conductors, c)
 		byName[name] = complex(c.Current*math.Cos(ph*math.Pi/180), c.Current*math.Sin(ph*math.Pi/180))
-		alarms = append(alarms, p.currentAlarms(w, i, name, c.Current, split)...)
+		alarms = append(alarms, p.currentAlarms(w, i, name, c.Current, split, gap)...)
 	}
+	prevAt := p.prevAt
+	p.prevAt = w.End
 	if len(a.Alarms.Balance) > 1 && a.Alarms.MaxImbalance > 0 {
 		// The currents are summed along one direction, the first balance
 		// conductor's: a conductor whose direction points the other way
@@ -653,7 +671,7 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 		// rather than stopping the asset. The step alarm's previous
 		// currents are left as they were before the window.
 		p.solveErr = fmt.Errorf("the estimate has a non-finite %s", what)
-		p.prev, p.prevEnd = prev, prevEnd
+		p.prev, p.prevEnd, p.prevAt = prev, prevEnd, prevAt
 		return p.failed(w, e, r.alarms, fmt.Sprintf("no estimate: the window's estimate came out with a non-finite %s (see the log)", what))
 	}
 	return e, alarms

@@ -251,8 +251,11 @@ func (w *assetWorker) applyRestart(req *RestartStatus, rev uint64) error {
 		w.asm.lastSeq = req.Seq - 1
 		w.proc.prev = map[string]float64{}
 		w.proc.prevEnd, w.proc.frozen = nil, nil
+		w.proc.active, w.proc.prevAt = nil, 0
 		w.pending, w.pendDur = nil, 0
-		w.ck = checkpoint{Start: req.Start, Revision: w.ck.Revision + 1, Restart: req.ID}
+		// The silence already alarmed is the same silence after the
+		// re-read: it is not alarmed again (silenceAtStart).
+		w.ck = checkpoint{Start: req.Start, Revision: w.ck.Revision + 1, Restart: req.ID, SilentSince: w.ck.SilentSince}
 		w.proc.revision = w.ck.Revision
 		if err := w.saveCheckpoint(); err != nil {
 			return err

@@ -25,7 +25,14 @@ type checkpoint struct {
 	ResumeSeq uint64             `json:"resume_seq"` // first UC_DATA sequence to read again
 	LastSeq   uint64             `json:"last_seq"`   // last UC_DATA sequence examined
 	Prev      map[string]float64 `json:"prev"`       // last currents, for the step alarm
-	Worker    string             `json:"worker"`
+	// PrevAt is the end of the window Prev was taken from (absent in a
+	// checkpoint written before it was kept: no gap is then judged).
+	PrevAt float64 `json:"prev_at,omitempty"`
+	// Ongoing holds the latched alarms' conditions that still hold (see
+	// latch), so that a successor neither raises them again nor loses
+	// their clearing.
+	Ongoing map[string]*latchedState `json:"ongoing,omitempty"`
+	Worker  string                   `json:"worker"`
 	// Start records the site-file start that placed the first checkpoint
 	// (empty when the asset began with everything retained).
 	Start string `json:"start,omitempty"`
@@ -91,6 +98,11 @@ type assetWorker struct {
 	// silenceAtStart already set from the broker's time of the last one,
 	// so that a takeover does not date a silence from its own start.
 	backlogTo time.Time
+	// backlogSeq is that batch's data stream sequence: until the worker
+	// has read up to it (a re-read after a restart request, a takeover
+	// behind), the asset's silent alarm waits (checkSilence), so that it
+	// is not placed among windows of data still to be read.
+	backlogSeq uint64
 	// stall is when the worker last found the stream holding data for the
 	// asset that its consumer had not delivered while an idle close was
 	// due (see storedAhead); zero when it is not waiting for such data.
@@ -183,6 +195,8 @@ func (w *assetWorker) runAsset(ctx context.Context) error {
 		for k, v := range w.ck.Prev {
 			w.proc.prev[k] = v
 		}
+		w.proc.prevAt = w.ck.PrevAt
+		w.proc.active = w.ck.Ongoing
 	} else if !errors.Is(err, jetstream.ErrKeyNotFound) {
 		return fmt.Errorf("live: asset %s: checkpoint: %w", w.asset.Name, err)
 	} else if err := w.placeStart(bg); err != nil {
@@ -674,7 +688,7 @@ func (w *assetWorker) silenceAtStart(ctx context.Context) (time.Time, bool) {
 	if ds, err := w.svc.stores.JS.Stream(ctx, broker.StreamData); err == nil {
 		if m, err := ds.GetLastMsgForSubject(ctx, broker.DataFilter(w.asset.Name)); err == nil {
 			last = m.Time
-			w.backlogTo = m.Time
+			w.backlogTo, w.backlogSeq = m.Time, m.Sequence
 		} else if !errors.Is(err, jetstream.ErrMsgNotFound) {
 			w.log.Warn("last data time not readable: silence counted from now", "err", err)
 		}
@@ -707,6 +721,9 @@ func (w *assetWorker) checkSilence(now time.Time) error {
 	quiet := now.Sub(w.lastData)
 	if w.silent || after <= 0 || quiet < after {
 		return nil
+	}
+	if w.backlogSeq > 0 && w.asm.lastSeq < w.backlogSeq {
+		return nil // stored data still to read: the silence comes after it
 	}
 	w.silent = true
 	L := w.asset.Window.Seconds()
@@ -1086,6 +1103,7 @@ func (w *assetWorker) publishWindow(win *window, r *reduced) error {
 	}
 	t1 := time.Now()
 	est, alarms := w.proc.solve(win, r)
+	alarms = w.proc.latch(win, est, alarms)
 	if w.ck.DataLost != "" && win.End > w.ck.DataLostAt {
 		est.DataLost = w.ck.DataLost
 	}
@@ -1124,7 +1142,7 @@ func (w *assetWorker) publishWindow(win *window, r *reduced) error {
 		met.estimates.WithLabelValues(w.asset.Name, "published").Inc()
 	}
 	for _, al := range alarms {
-		if err := w.publishAlarm(al, id+"/"+al.Kind+"/"+al.Subject); err != nil {
+		if err := w.publishAlarm(al, alarmID(id, al)); err != nil {
 			return err
 		}
 	}
@@ -1162,6 +1180,8 @@ func (w *assetWorker) saveCheckpoint() error {
 	w.ck.ResumeSeq = resume
 	w.ck.LastSeq = w.asm.lastSeq
 	w.ck.Prev = w.proc.prev
+	w.ck.PrevAt = w.proc.prevAt
+	w.ck.Ongoing = w.proc.active
 	w.ck.Worker = w.svc.id
 	data, _ := json.Marshal(w.ck)
 	ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
