@@ -86,6 +86,17 @@ type reduced struct {
 	// freq is the AC frequency the window was demodulated at, Hz, and
 	// freqSigma its uncertainty (0 when it is the site's frequency).
 	freq, freqSigma float64
+	// ref is the reference of the AC window's phases (the site's
+	// frequency's cosine from the Unix epoch, read at the window's
+	// middle), and refSigma, degrees, the share of the phases' sigma that
+	// the frequency's (freqSigma) gives them, carried from the middle of
+	// the readings to the reference time.
+	ref      phaseRef
+	refSigma float64
+	// harm are an AC window's used sensors' field phasors of harmonics 2
+	// to 1+len(harm), ENU, in the order of used (harm[h-2][k]): only the
+	// harmonics every used sensor's fit holds.
+	harm [][][3]complex128
 	// totals are the used sensors' mean total fields, |window mean of the
 	// calibrated field|, nT (the static field: a sine over whole cycles
 	// averages out).
@@ -207,7 +218,7 @@ type sensorData struct {
 // demodulated at the frequency found in the window (see windowFrequency).
 func (p *processor) reduce(w *window) *reduced {
 	a := p.asset
-	r := &reduced{missing: map[string]string{}, freq: a.Frequency}
+	r := &reduced{missing: map[string]string{}, freq: a.Frequency, ref: phaseRef{nominal: a.Frequency, at: (w.Start + w.End) / 2}}
 	var use []sensorData
 	for i, s := range a.Sensors {
 		sr := w.Sensors[i]
@@ -298,20 +309,30 @@ func (p *processor) reduce(w *window) *reduced {
 		if a.Mode == "ac" {
 			// The fundamental with the harmonics the readings allow
 			// (acPhasors), so that a harmonic does not leak into it.
-			ph, g, err := acPhasors(d.t, [3][]float64{d.bx, d.by, d.bz}, r.freq, acFitHarmonics(d.t, r.freq))
+			ph, harm, g, err := acPhasors(d.t, [3][]float64{d.bx, d.by, d.bz}, r.freq, acFitHarmonics(d.t, r.freq), r.ref)
 			if err != nil {
 				r.missing[s.Name] = err.Error()
 				continue
 			}
 			gains = append(gains, g)
 			r.ac = append(r.ac, d)
-			var e [3]complex128
-			for row := range 3 {
-				for k := range 3 {
-					e[row] += complex(R[row][k], 0) * ph[k]
+			enu := func(ph [3]complex128) [3]complex128 {
+				var e [3]complex128
+				for row := range 3 {
+					for k := range 3 {
+						e[row] += complex(R[row][k], 0) * ph[k]
+					}
 				}
+				return e
 			}
-			r.in.Phasors = append(r.in.Phasors, e)
+			r.in.Phasors = append(r.in.Phasors, enu(ph))
+			if len(r.in.Phasors) == 1 {
+				r.harm = make([][][3]complex128, len(harm))
+			}
+			r.harm = r.harm[:min(len(r.harm), len(harm))]
+			for h := range r.harm {
+				r.harm[h] = append(r.harm[h], enu(harm[h]))
+			}
 		} else {
 			m := [3]float64{mean(d.bx), mean(d.by), mean(d.bz)}
 			var e [3]float64
@@ -329,6 +350,21 @@ func (p *processor) reduce(w *window) *reduced {
 		ns = append(ns, n)
 	}
 	r.counts = ns
+	if a.Mode == "ac" && r.freqSigma > 0 && len(r.ac) > 0 {
+		// The found frequency's error df turns the phases by 360 df
+		// (ref.at - tm), tm the middle of the readings (the fit's phase
+		// is the readings' at their middle, uncorrelated with the
+		// frequency there).
+		var tm float64
+		var n int
+		for _, d := range r.ac {
+			for _, t := range d.t {
+				tm += t - r.ref.at
+			}
+			n += len(d.t)
+		}
+		r.refSigma = 360 * r.freqSigma * math.Abs(tm/float64(n))
+	}
 	if a.Noise > 0 && len(ns) > 0 {
 		// Noise of a mean of n samples (DC) or of each quadrature of a
 		// sine fit over n samples (AC): sigma / sqrt(n), each sensor with
@@ -610,7 +646,7 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 		}
 		ph := 0.0
 		if out.Phase != nil {
-			v, s := out.Phase[i], math.Min(180, out.PhaseSigma[i]*scale)
+			v, s := out.Phase[i], math.Min(180, math.Hypot(out.PhaseSigma[i]*scale, r.refSigma))
 			if gPhase != nil {
 				g := math.Min(180, gPhase[i])
 				s = math.Min(180, math.Hypot(s, g))
