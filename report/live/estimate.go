@@ -88,7 +88,8 @@ type Estimate struct {
 // ConductorEstimate is one conductor's current in a window.
 type ConductorEstimate struct {
 	Name string `json:"name"`
-	// Current is A, signed along the conductor's direction (RMS for AC).
+	// Current is A, signed along the conductor's direction (for AC the
+	// fundamental's RMS; CurrentTotal counts the harmonics).
 	Current float64 `json:"current_a"`
 	// CurrentSigma is the one-sigma error of Current: the window's noise
 	// and, for a commissioned geometry, CurrentSigmaGeometry, added in
