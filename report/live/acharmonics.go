@@ -62,22 +62,50 @@ func acSettings(H int) *calibrate.SineSettings {
 
 var errACFit = errors.New("AC fit: too few readings for the fundamental and its harmonics, or their basis is singular")
 
+// phaseRef is the reference of an AC window's phases: a cosine of the
+// site's frequency (nominal, Hz) peaking at the Unix epoch, read at the
+// time at, s (the window's middle). Every phasor of a window, of each
+// sensor, of the window's parts (windowChangeAC) and of each harmonic, is
+// the phase of its sinusoid at that time against that cosine, so that
+// the phases of one window share one reference, and a frequency found
+// off nominal (windowFrequency) is carried from the readings to the
+// reference time only, within the window: an error df of it turns the
+// phase by 360 df (at - tmid) degrees, tmid the middle of the readings,
+// not by 360 df at (some 5e6 degrees for 1e-5 Hz at Unix times near
+// 1.4e9 s, which the phasors' reference to absolute time through the
+// found frequency gave).
+type phaseRef struct {
+	nominal, at float64
+}
+
+// turn is the phase, radians, by which a local phasor of harmonic h at
+// freq (Hz) whose basis starts at t0 is turned to the reference: h times
+// the phase the found frequency advances from t0 to the reference time
+// less that of the nominal cosine at the reference time.
+func (r phaseRef) turn(h int, freq, t0 float64) float64 {
+	adv := math.Mod(freq*(r.at-t0), 1)
+	ref := math.Mod(r.nominal*r.at, 1)
+	return 2 * math.Pi * math.Mod(float64(h)*(adv-ref), 1)
+}
+
 // acPhasors fits the fundamental at freq (Hz), a constant and harmonics
 // 2 to H (acHarmonicCols) to the three axes of readings at times t by one
 // least-squares fit (QR), and returns each axis's RMS phasor of the
-// fundamental referred to absolute time (calibrate.SineFit.Phasor's
-// convention) and the fit's noise gain: the factor g by which the sigma
+// fundamental (y(t) = sqrt 2 Re(P exp(i phase(t))), P's phase referred
+// to ref), the RMS phasors of harmonics 2 to H likewise (harm[h-2],
+// harmonic h's phase referred to h times ref's), and the fit's noise
+// gain: the factor g by which the sigma
 // of each quadrature of the phasors exceeds sigma/sqrt(n), for readings
 // of white noise sigma, from the fit's covariance (X^T X)^-1 (its mean
 // over the fundamental's two coefficients). g is 1 over whole cycles of
 // evenly spaced readings, and grows when the harmonics' columns are not
 // orthogonal to the fundamental's over the readings.
-func acPhasors(t []float64, axes [3][]float64, freq float64, H int) ([3]complex128, float64, error) {
+func acPhasors(t []float64, axes [3][]float64, freq float64, H int, ref phaseRef) ([3]complex128, [][3]complex128, float64, error) {
 	n := len(t)
 	p := acCols(H)
 	var ph [3]complex128
 	if n <= p || !(freq > 0) {
-		return ph, 0, errACFit
+		return ph, nil, 0, errACFit
 	}
 	t0 := t[0]
 	w := 2 * math.Pi * freq
@@ -97,13 +125,27 @@ func acPhasors(t []float64, axes [3][]float64, freq float64, H int) ([3]complex1
 	qr.Factorize(X)
 	var beta mat.Dense
 	if err := qr.SolveTo(&beta, false, Y); err != nil {
-		return ph, 0, errACFit
+		return ph, nil, 0, errACFit
+	}
+	// The local RMS phasor of a cos/sin pair (a, b) is (a - ib)/sqrt 2,
+	// turned to the reference.
+	local := func(row, a, h int) complex128 {
+		s, c := math.Sincos(ref.turn(h, freq, t0))
+		return complex(beta.At(row, a), -beta.At(row+1, a)) / math.Sqrt2 * complex(c, s)
 	}
 	for a := range 3 {
-		ph[a] = calibrate.SineFit{A: beta.At(0, a), B: beta.At(1, a), Freq: freq, T0: t0}.Phasor()
+		ph[a] = local(0, a, 1)
 		if math.IsNaN(real(ph[a])) || math.IsNaN(imag(ph[a])) {
-			return ph, 0, errACFit
+			return ph, nil, 0, errACFit
 		}
+	}
+	var harm [][3]complex128
+	for h := 2; h <= H; h++ {
+		var e [3]complex128
+		for a := range 3 {
+			e[a] = local(3+2*(h-2), a, h)
+		}
+		harm = append(harm, e)
 	}
 	// (X^T X)^-1 = R^-1 R^-T: its diagonal is the rows' sums of squares
 	// of R^-1.
@@ -117,7 +159,7 @@ func acPhasors(t []float64, axes [3][]float64, freq float64, H int) ([3]complex1
 	}
 	var Ri mat.TriDense
 	if err := Ri.InverseTri(R); err != nil {
-		return ph, 0, errACFit
+		return ph, nil, 0, errACFit
 	}
 	var c float64
 	for i := range 2 {
@@ -129,7 +171,7 @@ func acPhasors(t []float64, axes [3][]float64, freq float64, H int) ([3]complex1
 	// each quadrature of the RMS phasor (A - iB)/sqrt 2 half their mean.
 	g := math.Sqrt(c / 2 * float64(n) / 2)
 	if !(g > 0) || math.IsInf(g, 0) {
-		return ph, 0, errACFit
+		return ph, nil, 0, errACFit
 	}
-	return ph, g, nil
+	return ph, harm, g, nil
 }

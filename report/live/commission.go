@@ -768,7 +768,7 @@ func publishedGeometry(g *storedGeometry, sensors []SensorConfig) *CommissionedG
 	if u == nil {
 		return out
 	}
-	groups, err := conductorGroups(g.Conductors)
+	groups, err := storedGroups(g.Conductors, u)
 	if err != nil {
 		return out
 	}
@@ -822,4 +822,37 @@ func publishedGeometry(g *storedGeometry, sensors []SensorConfig) *CommissionedG
 		cc.PointSigmaM, cc.DepthSigmaM, cc.AzimuthSigmaDeg = &ps, &ds, &as
 	}
 	return out
+}
+
+// storedGroups returns the groups conds were fitted in: u's, which the
+// geometry stores beside its covariance, when they name every conductor
+// once in groups of one or two lines; else those of conds' held pairs
+// (conductorGroups). A geometry read back from uc_state has lost its
+// conductors' held pairs (ConductorConfig.heldPair is not stored), so
+// that a go-and-return pair would be taken for two free lines, whose
+// parameter count does not match the covariance's.
+func storedGroups(conds []ConductorConfig, u *geometryUncertainty) ([][]int, error) {
+	if u != nil && len(u.Groups) > 0 {
+		seen := make([]bool, len(conds))
+		ok := true
+		n := 0
+		for _, g := range u.Groups {
+			if len(g) != 1 && len(g) != 2 {
+				ok = false
+				break
+			}
+			for _, i := range g {
+				if i < 0 || i >= len(conds) || seen[i] || (conds[i].Kind != "" && conds[i].Kind != "line") {
+					ok = false
+					break
+				}
+				seen[i] = true
+				n++
+			}
+		}
+		if ok && n == len(conds) {
+			return u.Groups, nil
+		}
+	}
+	return conductorGroups(conds)
 }

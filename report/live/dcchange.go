@@ -292,8 +292,13 @@ func mad(v []float64) float64 {
 // the level the previous window ended at, and the part after the change
 // against the part before. Over-current takes the largest level, the
 // step alarm the largest change, so a step anywhere in a window is judged
-// whole.
-func (p *processor) currentAlarms(w *window, i int, name string, cur float64, split *windowSplit, gap float64) []Alarm {
+// whole. total, when above 0, is an AC conductor's total RMS current
+// with its harmonics (ConductorEstimate.CurrentTotal): over-current
+// judges it too, since a conductor's heating, and so its rating, goes
+// with the total RMS; steps are the fundamental's. gap, when above 0, is
+// the time in seconds since the previous window with currents ended (a
+// data outage between them): step alarms say so.
+func (p *processor) currentAlarms(w *window, i int, name string, cur, total float64, split *windowSplit, gap float64) []Alarm {
 	a := p.asset
 	var out []Alarm
 	peak, what := cur, ""
@@ -303,6 +308,10 @@ func (p *processor) currentAlarms(w *window, i int, name string, cur float64, sp
 				peak, what = v, fmt.Sprintf(" for part of the window (%.4g A on average)", cur)
 			}
 		}
+	}
+	if total > math.Abs(peak) {
+		// An AC conductor's total RMS with its harmonics, which heats it.
+		peak, what = total, fmt.Sprintf(" RMS with its harmonics (the fundamental %.4g A)", cur)
 	}
 	if t := a.Alarms.MaxCurrent; t > 0 && math.Abs(peak) > t {
 		out = append(out, p.alarm(w, AlarmOverCurrent, name, peak, t,

@@ -96,7 +96,8 @@ type Estimate struct {
 // ConductorEstimate is one conductor's current in a window.
 type ConductorEstimate struct {
 	Name string `json:"name"`
-	// Current is A, signed along the conductor's direction (RMS for AC).
+	// Current is A, signed along the conductor's direction (for AC the
+	// fundamental's RMS; CurrentTotal counts the harmonics).
 	Current float64 `json:"current_a"`
 	// CurrentSigma is the one-sigma error of Current: the window's noise
 	// and, for a commissioned geometry, CurrentSigmaGeometry, added in
@@ -110,12 +111,35 @@ type ConductorEstimate struct {
 	// should leave it out, sqrt(CurrentSigma^2 - CurrentSigmaGeometry^2)
 	// being each window's own.
 	CurrentSigmaGeometry float64 `json:"current_sigma_geometry_a,omitempty"`
-	// Phase is degrees relative to cos(2 pi f t) on the sensor clock (AC).
+	// Phase is degrees, the current's at the window's middle against
+	// cos(2 pi f t), f the site's frequency and t the sensor clock (Unix
+	// time): see phaseRef (AC).
 	Phase      *float64 `json:"phase_deg,omitempty"`
 	PhaseSigma *float64 `json:"phase_sigma_deg,omitempty"`
 	// PhaseSigmaGeometry is the part of PhaseSigma from the commissioned
 	// geometry's error, as CurrentSigmaGeometry (AC, model "commission").
 	PhaseSigmaGeometry *float64 `json:"phase_sigma_geometry_deg,omitempty"`
+	// CurrentTotal is an AC conductor's total RMS current, A: the
+	// fundamental's (Current) and its harmonics' (Harmonics) in
+	// quadrature, each harmonic's square less its noise's share (2
+	// sigma^2, the mean of a noise phasor's squared magnitude), at least
+	// the fundamental's; CurrentTotalSigma its one-sigma error. Absent
+	// for DC and when no harmonic was fitted (a sample rate under 2.5
+	// times the second harmonic).
+	CurrentTotal      *float64 `json:"current_total_a,omitempty"`
+	CurrentTotalSigma *float64 `json:"current_total_sigma_a,omitempty"`
+	// Harmonics are an AC conductor's harmonic currents (orders 2 up to
+	// the fifth that the sample rate allows), each solved from the
+	// sensors' harmonic field phasors with the geometry held as the
+	// fundamental's.
+	Harmonics []HarmonicCurrent `json:"harmonics,omitempty"`
+}
+
+// HarmonicCurrent is one harmonic of an AC conductor's current.
+type HarmonicCurrent struct {
+	Order        int     `json:"order"`
+	Current      float64 `json:"current_a"`
+	CurrentSigma float64 `json:"current_sigma_a"`
 }
 
 // WindowChange is a change of current within a window (DC, or the RMS

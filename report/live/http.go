@@ -451,7 +451,8 @@ func (s *Service) history(w http.ResponseWriter, r *http.Request) {
 // (revision, then the commissioned geometry's share of the sigmas, then a
 // degraded window's sigma scale and the data lost before a window, then
 // a change within the window, the sensors left out or short, the spikes,
-// the implausible reasons and the AC frequency) come after the earlier
+// the implausible reasons and the AC frequency, then an AC conductor's
+// total RMS current and harmonics) come after the earlier
 // ones so that those keep their places.
 func writeEstimatesCSV(w http.ResponseWriter, ests []Estimate) {
 	w.Header().Set("Content-Type", "text/csv")
@@ -459,7 +460,8 @@ func writeEstimatesCSV(w http.ResponseWriter, ests []Estimate) {
 	cw.Write([]string{"asset", "window", "start", "end", "conductor", "current_a", "current_sigma_a", "phase_deg", "phase_sigma_deg", "rms_nt", "chi2", "dof", "quality", "sensors", "revision",
 		"current_sigma_geometry_a", "phase_sigma_geometry_deg", "sigma_scale", "data_lost",
 		"change_at", "change_sigmas", "current_before_a", "current_before_sigma_a", "current_after_a", "current_after_sigma_a", "phase_before_deg", "phase_after_deg",
-		"missing", "spikes", "implausible", "frequency_hz", "frequency_sigma_hz"})
+		"missing", "spikes", "implausible", "frequency_hz", "frequency_sigma_hz",
+		"current_total_a", "current_total_sigma_a", "harmonics"})
 	f := func(v float64) string { return strconv.FormatFloat(v, 'g', 10, 64) }
 	// Times (seconds on the sensors' clock, Unix seconds for most) in
 	// full: ten significant digits would cut a change inside a window to
@@ -529,11 +531,19 @@ func writeEstimatesCSV(w http.ResponseWriter, ests []Estimate) {
 			row := []string{e.Asset, strconv.FormatInt(e.Window, 10), ft(e.Start), ft(e.End), c.Name, f(c.Current), f(c.CurrentSigma),
 				ph, phs, f(e.RMS), f(e.Chi2), strconv.Itoa(e.DOF), e.Quality, strconv.Itoa(e.Sensors), strconv.Itoa(e.Revision), gs, gps, scale, e.DataLost}
 			row = append(append(row, change(c.Name)...), tail...)
+			// AC: the total RMS with the harmonics, and each harmonic as
+			// "order: current ± sigma" joined by "; ".
+			tot, tots := fp(c.CurrentTotal), fp(c.CurrentTotalSigma)
+			var hs []string
+			for _, h := range c.Harmonics {
+				hs = append(hs, fmt.Sprintf("%d: %s ± %s", h.Order, f(h.Current), f(h.CurrentSigma)))
+			}
+			row = append(row, tot, tots, strings.Join(hs, "; "))
 			cw.Write(row)
 		}
 		if len(e.Conductors) == 0 {
 			row := []string{e.Asset, strconv.FormatInt(e.Window, 10), ft(e.Start), ft(e.End), "", "", "", "", "", f(e.RMS), f(e.Chi2), strconv.Itoa(e.DOF), e.Quality, strconv.Itoa(e.Sensors), strconv.Itoa(e.Revision), "", "", scale, e.DataLost}
-			row = append(append(row, change("")...), tail...)
+			row = append(append(append(row, change("")...), tail...), "", "", "")
 			cw.Write(row)
 		}
 	}

@@ -92,6 +92,17 @@ type reduced struct {
 	// freq is the AC frequency the window was demodulated at, Hz, and
 	// freqSigma its uncertainty (0 when it is the site's frequency).
 	freq, freqSigma float64
+	// ref is the reference of the AC window's phases (the site's
+	// frequency's cosine from the Unix epoch, read at the window's
+	// middle), and refSigma, degrees, the share of the phases' sigma that
+	// the frequency's (freqSigma) gives them, carried from the middle of
+	// the readings to the reference time.
+	ref      phaseRef
+	refSigma float64
+	// harm are an AC window's used sensors' field phasors of harmonics 2
+	// to 1+len(harm), ENU, in the order of used (harm[h-2][k]): only the
+	// harmonics every used sensor's fit holds.
+	harm [][][3]complex128
 	// totals are the used sensors' mean total fields, |window mean of the
 	// calibrated field|, nT (the static field: a sine over whole cycles
 	// averages out).
@@ -213,7 +224,7 @@ type sensorData struct {
 // demodulated at the frequency found in the window (see windowFrequency).
 func (p *processor) reduce(w *window) *reduced {
 	a := p.asset
-	r := &reduced{missing: map[string]string{}, freq: a.Frequency}
+	r := &reduced{missing: map[string]string{}, freq: a.Frequency, ref: phaseRef{nominal: a.Frequency, at: (w.Start + w.End) / 2}}
 	var use []sensorData
 	for i, s := range a.Sensors {
 		sr := w.Sensors[i]
@@ -304,20 +315,30 @@ func (p *processor) reduce(w *window) *reduced {
 		if a.Mode == "ac" {
 			// The fundamental with the harmonics the readings allow
 			// (acPhasors), so that a harmonic does not leak into it.
-			ph, g, err := acPhasors(d.t, [3][]float64{d.bx, d.by, d.bz}, r.freq, acFitHarmonics(d.t, r.freq))
+			ph, harm, g, err := acPhasors(d.t, [3][]float64{d.bx, d.by, d.bz}, r.freq, acFitHarmonics(d.t, r.freq), r.ref)
 			if err != nil {
 				r.missing[s.Name] = err.Error()
 				continue
 			}
 			gains = append(gains, g)
 			r.ac = append(r.ac, d)
-			var e [3]complex128
-			for row := range 3 {
-				for k := range 3 {
-					e[row] += complex(R[row][k], 0) * ph[k]
+			enu := func(ph [3]complex128) [3]complex128 {
+				var e [3]complex128
+				for row := range 3 {
+					for k := range 3 {
+						e[row] += complex(R[row][k], 0) * ph[k]
+					}
 				}
+				return e
 			}
-			r.in.Phasors = append(r.in.Phasors, e)
+			r.in.Phasors = append(r.in.Phasors, enu(ph))
+			if len(r.in.Phasors) == 1 {
+				r.harm = make([][][3]complex128, len(harm))
+			}
+			r.harm = r.harm[:min(len(r.harm), len(harm))]
+			for h := range r.harm {
+				r.harm[h] = append(r.harm[h], enu(harm[h]))
+			}
 		} else {
 			m := [3]float64{mean(d.bx), mean(d.by), mean(d.bz)}
 			var e [3]float64
@@ -335,6 +356,21 @@ func (p *processor) reduce(w *window) *reduced {
 		ns = append(ns, n)
 	}
 	r.counts = ns
+	if a.Mode == "ac" && r.freqSigma > 0 && len(r.ac) > 0 {
+		// The found frequency's error df turns the phases by 360 df
+		// (ref.at - tm), tm the middle of the readings (the fit's phase
+		// is the readings' at their middle, uncorrelated with the
+		// frequency there).
+		var tm float64
+		var n int
+		for _, d := range r.ac {
+			for _, t := range d.t {
+				tm += t - r.ref.at
+			}
+			n += len(d.t)
+		}
+		r.refSigma = 360 * r.freqSigma * math.Abs(tm/float64(n))
+	}
 	if a.Noise > 0 && len(ns) > 0 {
 		// Noise of a mean of n samples (DC) or of each quadrature of a
 		// sine fit over n samples (AC): sigma / sqrt(n), each sensor with
@@ -607,6 +643,7 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 				PhaseBefore: phaseOf(split.before, i), PhaseAfter: phaseOf(split.after, i)})
 		}
 	}
+	harm := p.harmonicCurrents(r, scale)
 	byName := map[string]complex128{}
 	// A window with currents that does not follow the previous one
 	// (a data outage, failed windows between) is compared with it across
@@ -626,7 +663,7 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 		}
 		ph := 0.0
 		if out.Phase != nil {
-			v, s := out.Phase[i], math.Min(180, out.PhaseSigma[i]*scale)
+			v, s := out.Phase[i], math.Min(180, math.Hypot(out.PhaseSigma[i]*scale, r.refSigma))
 			if gPhase != nil {
 				g := math.Min(180, gPhase[i])
 				s = math.Min(180, math.Hypot(s, g))
@@ -637,7 +674,19 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 		}
 		e.Conductors = append(e.Conductors, c)
 		byName[name] = complex(c.Current*math.Cos(ph*math.Pi/180), c.Current*math.Sin(ph*math.Pi/180))
-		alarms = append(alarms, p.currentAlarms(w, i, name, c.Current, split, gap)...)
+		total := 0.0
+		if i < len(harm) {
+			c.Harmonics = harm[i]
+			tot, ts := totalRMS(c.Current, out.CurrentSigma[i]*scale, harm[i])
+			if gCur != nil && c.Current > 0 {
+				// The geometry's error scales every harmonic alike.
+				ts = math.Hypot(ts, gCur[i]*tot/c.Current)
+			}
+			c.CurrentTotal, c.CurrentTotalSigma = &tot, &ts
+			total = tot
+			e.Conductors[len(e.Conductors)-1] = c
+		}
+		alarms = append(alarms, p.currentAlarms(w, i, name, c.Current, total, split, gap)...)
 	}
 	prevAt := p.prevAt
 	p.prevAt = w.End
@@ -869,4 +918,53 @@ func (p *processor) dirOf(name string) [3]float64 {
 func (p *processor) alarm(w *window, kind, subject string, value, threshold float64, msg string) Alarm {
 	return Alarm{Asset: p.asset.Name, Kind: kind, Window: w.Index, Start: w.Start, End: w.End,
 		Subject: subject, Value: value, Threshold: threshold, Message: msg, Revision: p.revision}
+}
+
+// harmonicCurrents solves each harmonic of an AC window's field phasors
+// (reduced.harm) for the conductors' harmonic currents with the
+// window's estimator (the geometry held as for the fundamental; the
+// quasi-static field of a line is the same at 100-250 Hz as at 50 Hz),
+// the sigmas widened by scale as the fundamental's. It returns, per
+// conductor, its harmonics in order; nil for DC, when none was fitted,
+// or when a harmonic's solve fails.
+func (p *processor) harmonicCurrents(r *reduced, scale float64) [][]HarmonicCurrent {
+	if p.asset.Mode != "ac" || len(r.harm) == 0 || p.est == nil {
+		return nil
+	}
+	out := make([][]HarmonicCurrent, len(p.names))
+	for h, ph := range r.harm {
+		if len(ph) != len(r.in.Points) {
+			return nil
+		}
+		in := SolveInput{Points: r.in.Points, Phasors: ph, Sigma: r.in.Sigma, Sigmas: r.in.Sigmas}
+		o, err := p.est.Solve(&in)
+		if err != nil || len(o.Current) != len(p.names) || nonFiniteOutput(o) != "" {
+			return nil
+		}
+		for i := range p.names {
+			out[i] = append(out[i], HarmonicCurrent{Order: h + 2, Current: math.Abs(o.Current[i]), CurrentSigma: o.CurrentSigma[i] * scale})
+		}
+	}
+	return out
+}
+
+// totalRMS returns the total RMS current of a conductor whose
+// fundamental is fund +- fundSigma (A RMS) with harmonics harm, and its
+// one-sigma error: sqrt(fund^2 + sum(I_h^2 - 2 sigma_h^2)), each
+// harmonic's square less the mean its noise adds (a phasor of noise
+// sigma_h in each quadrature adds 2 sigma_h^2 to the squared magnitude),
+// at least the fundamental's magnitude; the error propagated to first
+// order, sqrt(sum (I_k sigma_k)^2) / total.
+func totalRMS(fund, fundSigma float64, harm []HarmonicCurrent) (float64, float64) {
+	sum := fund * fund
+	v := fund * fund * fundSigma * fundSigma
+	for _, hc := range harm {
+		sum += hc.Current*hc.Current - 2*hc.CurrentSigma*hc.CurrentSigma
+		v += hc.Current * hc.Current * hc.CurrentSigma * hc.CurrentSigma
+	}
+	tot := math.Max(math.Sqrt(math.Max(sum, 0)), math.Abs(fund))
+	if tot == 0 {
+		return 0, fundSigma
+	}
+	return tot, math.Sqrt(v) / tot
 }

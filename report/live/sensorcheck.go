@@ -112,7 +112,16 @@ func (p *processor) reducedChi2(in *SolveInput) float64 {
 // without is r without its k-th used sensor.
 func (r *reduced) without(k int) *reduced {
 	cut := func(n int) func(int) bool { return func(i int) bool { return i != k && i < n } }
-	o := &reduced{missing: map[string]string{}, freq: r.freq, freqSigma: r.freqSigma, spikes: r.spikes, alarms: r.alarms}
+	o := &reduced{missing: map[string]string{}, freq: r.freq, freqSigma: r.freqSigma, spikes: r.spikes, alarms: r.alarms, ref: r.ref, refSigma: r.refSigma}
+	for _, hp := range r.harm {
+		var kept [][3]complex128
+		for i := range hp {
+			if i != k {
+				kept = append(kept, hp[i])
+			}
+		}
+		o.harm = append(o.harm, kept)
+	}
 	for key, v := range r.missing {
 		o.missing[key] = v
 	}
