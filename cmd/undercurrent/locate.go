@@ -204,7 +204,7 @@ func (o *locateOptions) check(fs *pflag.FlagSet) error {
 	}
 	given := func(name string) bool { return fs != nil && fs.Changed(name) }
 	if o.stepK < 0 || math.IsNaN(o.stepK) || math.IsInf(o.stepK, 0) || given("step-k") && o.stepK == 0 {
-		return usageErrorf("--step-k %g: want a positive number of standard deviations", o.stepK)
+		return usageErrorf("--step-k %g: want a finite positive number of standard deviations", o.stepK)
 	}
 	if given("window") && o.window == 0 {
 		return usageErrorf("--window 0: want a positive length in seconds (leave it out for the default)")

@@ -3,6 +3,7 @@ package main
 import (
 	"fmt"
 	"math"
+	"regexp"
 	"strconv"
 	"strings"
 	"testing"
@@ -126,8 +127,19 @@ phase_deg = 35.0
 						continue
 					}
 					for _, w2 := range doc.Warnings {
-						if strings.Contains(w2, "estimated from single windows") && !strings.Contains(w2, "within its own uncertainty") {
+						if strings.Contains(w2, "estimated from single windows") && !strings.Contains(w2, "within three of its own sigmas") {
 							t.Errorf("seed %d: the estimate %s ± %s Hz lies within three sigmas of the simulated %g Hz, yet: %s", seed, m[1], m[2], truth, w2)
+						}
+						// The offset and the sigma it is judged by are printed
+						// so that a reader can check it: the sigma had been
+						// rounded to one decimal place of its own, so that an
+						// offset of 0.026 Hz read as 2.6 times "± 0.01 Hz".
+						if o := withinRE.FindStringSubmatch(w2); o != nil {
+							off, _ := strconv.ParseFloat(o[1], 64)
+							sig, _ := strconv.ParseFloat(o[2], 64)
+							if !(math.Abs(off) <= 3.1*sig) {
+								t.Errorf("seed %d: the warning's offset %s Hz is %.2g of its printed sigma %s Hz, said to be within three: %s", seed, o[1], math.Abs(off)/sig, o[2], w2)
+							}
 						}
 					}
 				}
@@ -155,3 +167,7 @@ phase_deg = 35.0
 		})
 	}
 }
+
+// withinRE reads the offset and the estimate's printed sigma from the
+// warning that says the estimate was off within three of its sigmas.
+var withinRE = regexp.MustCompile(`off by ([-+0-9.]+) ± [0-9.]+ Hz, within three of its own sigmas \(its sigma ± ([0-9.]+) Hz\)`)
