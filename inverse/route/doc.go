@@ -76,8 +76,13 @@
 // accounts for their disagreement, each later walk's stations are first
 // brought to the first walk's level by it, its sigma carried, so that
 // the steps see one current along the route (Route.FirstWalk,
-// Placed.FirstWalkCurrent); otherwise the combined station's sigma is
-// widened by the repeats' disagreement.
+// Placed.FirstWalkCurrent). When one change per walk on one side of a
+// point between two sets of repeats accounts for it (a step whose size
+// changed between the walks), the finding is a warning with each walk's
+// step there, and only the stations on that side are brought to the
+// first walk's level, so that the steps take the first walk's step;
+// otherwise the combined station's sigma is widened by the repeats'
+// disagreement.
 //
 // # Steps in current
 //
