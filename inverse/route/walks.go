@@ -157,8 +157,11 @@ func (s *walkSplit) differs(c float64) bool {
 // one change from the first walk there, and returns the one that leaves
 // the least chi-square when that is within the 1-walkAlpha quantile of
 // restDOF degrees of freedom (the same as one change per walk across the
-// whole route), or nil. Each side needs a set held by the first walk
-// and another.
+// whole route), or nil. Each side needs two sets held by the first walk
+// and another: one set alone past a point is as well one repeat's fit
+// off (near a bend, the straight-line model's error differing between
+// the walks), which the change of that one set would absorb, and a
+// false warning would follow.
 func splitChange(sets [][]*Placed, perSet []map[string]struct{ v, w float64 }, order []*walkLevel, ref *walkLevel, walkOf func(*Placed, int) string, sig func(*Placed) float64, restDOF int) *walkSplit {
 	if len(sets) < 2 || restDOF <= 0 {
 		return nil
@@ -189,7 +192,7 @@ func splitChange(sets [][]*Placed, perSet []map[string]struct{ v, w float64 }, o
 					ok = true
 				}
 			}
-			if !ok || !bothSides(perSet, k, ref.name) {
+			if !ok || !bothSides(perSet, k, ref.name, order[1:]) {
 				continue
 			}
 			var rest float64
@@ -262,20 +265,30 @@ func splitChange(sets [][]*Placed, perSet []map[string]struct{ v, w float64 }, o
 	return best
 }
 
-// bothSides tells whether the first walk holds a set of repeats on each
-// side of set k.
-func bothSides(perSet []map[string]struct{ v, w float64 }, k int, ref string) bool {
-	var before, after bool
+// bothSides tells whether, on each side of set k, two sets of repeats or
+// more hold the first walk (ref) and another.
+func bothSides(perSet []map[string]struct{ v, w float64 }, k int, ref string, others []*walkLevel) bool {
+	var before, after int
 	for i, m := range perSet {
-		if _, ok := m[ref]; ok {
-			if i < k {
-				before = true
-			} else {
-				after = true
+		if _, ok := m[ref]; !ok {
+			continue
+		}
+		held := false
+		for _, wl := range others {
+			if _, ok := m[wl.name]; ok {
+				held = true
 			}
 		}
+		if !held {
+			continue
+		}
+		if i < k {
+			before++
+		} else {
+			after++
+		}
 	}
-	return before && after
+	return before >= 2 && after >= 2
 }
 
 // message is the walks-differ finding's text for a change that starts
