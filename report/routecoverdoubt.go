@@ -36,14 +36,24 @@ func routeCoverDoubt(d *Document, r *Route, s Station) string {
 		if r.StationScatterCurrent != nil {
 			tau = *r.StationScatterCurrent
 		}
+		// At the first walk's level on a route walked again at another
+		// current (Route.FirstWalk), as the steps take them.
+		sv, ss := s.levelCurrent()
 		off := func(n Station) float64 {
-			sg := math.Sqrt(s.CurrentSigma*s.CurrentSigma + n.CurrentSigma*n.CurrentSigma + tau*tau)
-			return (s.Current - n.Current) / sg
+			nv, ns := n.levelCurrent()
+			sg := math.Sqrt(ss*ss + ns*ns + tau*tau)
+			return (sv - nv) / sg
 		}
 		a, b := off(lo), off(hi)
 		if (a > routeAnomalyK && b > routeAnomalyK) || (a < -routeAnomalyK && b < -routeAnomalyK) {
-			why = append(why, fmt.Sprintf("its current, %s A, differs from both neighbours' (%s A at %s, %s A at %s) by more than %d sigma",
-				pm(s.Current, s.CurrentSigma), pm(lo.Current, lo.CurrentSigma), lo.Key, pm(hi.Current, hi.CurrentSigma), hi.Key, routeAnomalyK))
+			lv, ls := lo.levelCurrent()
+			hv, hs := hi.levelCurrent()
+			level := ""
+			if r.FirstWalk != "" {
+				level = fmt.Sprintf(", at the level of %s", r.FirstWalk)
+			}
+			why = append(why, fmt.Sprintf("its current, %s A, differs from both neighbours' (%s A at %s, %s A at %s%s) by more than %d sigma",
+				pm(sv, ss), pm(lv, ls), lo.Key, pm(hv, hs), hi.Key, level, routeAnomalyK))
 		}
 	}
 	if len(why) == 0 {
@@ -54,7 +64,11 @@ func routeCoverDoubt(d *Document, r *Route, s Station) string {
 }
 
 // routeNeighbours returns the nearest used stations of r before and after
-// the station keyed key; ok is false when either side has none.
+// the station keyed key; ok is false when either side has none. Its own
+// repeats (a route walked again: stations within RepeatGap of it, or at
+// its chainage) are not its neighbours: T14 had been compared with its
+// own repeat and the other walk's T13 at their raw currents, 10% above
+// its own on a re-walk at more current (found in review).
 func routeNeighbours(r *Route, key string) (lo, hi Station, ok bool) {
 	at := -1
 	for i, s := range r.Stations {
@@ -66,14 +80,19 @@ func routeNeighbours(r *Route, key string) (lo, hi Station, ok bool) {
 	if at < 0 {
 		return lo, hi, false
 	}
+	c := r.Stations[at].Chainage
+	other := func(n *Station) bool {
+		d := math.Abs(n.Chainage - c)
+		return n.Used && d > 0 && d >= r.RepeatGap
+	}
 	okLo, okHi := false, false
 	for i := at - 1; i >= 0 && !okLo; i-- {
-		if r.Stations[i].Used {
+		if other(&r.Stations[i]) {
 			lo, okLo = r.Stations[i], true
 		}
 	}
 	for i := at + 1; i < len(r.Stations) && !okHi; i++ {
-		if r.Stations[i].Used {
+		if other(&r.Stations[i]) {
 			hi, okHi = r.Stations[i], true
 		}
 	}

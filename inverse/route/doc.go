@@ -76,13 +76,18 @@
 // accounts for their disagreement, each later walk's stations are first
 // brought to the first walk's level by it, its sigma carried, so that
 // the steps see one current along the route (Route.FirstWalk,
-// Placed.FirstWalkCurrent); otherwise the combined station's sigma is
-// widened by the repeats' disagreement. For AC, each later walk's phases
-// are first referred to the first walk's by one fitted offset (walks on
-// different days have phase references of their own); where one offset
-// does not hold (a phasor loss that changed between the walks), a
-// KindWalksDiffer caution says where, and the phasor steps take the first
-// walk's phases alone at the repeated stations (see walkphase.go).
+// Placed.FirstWalkCurrent). When one change per walk on one side of a
+// point between two sets of repeats accounts for it (a step whose size
+// changed between the walks), the finding is a warning with each walk's
+// step there, and only the stations on that side are brought to the
+// first walk's level, so that the steps take the first walk's step;
+// otherwise the combined station's sigma is widened by the repeats'
+// disagreement. For AC, each later walk's phases are first referred to
+// the first walk's by one fitted offset (walks on different days have
+// phase references of their own); where one offset does not hold (a
+// phasor loss that changed between the walks), a KindWalksDiffer caution
+// says where, and the phasor steps take the first walk's phases alone at
+// the repeated stations (see walkphase.go).
 //
 // # Steps in current
 //

@@ -39,7 +39,9 @@ const (
 	KindWeakSource Kind = "weak-source"
 	// KindWalksDiffer is repeats of stations (a route walked again) whose
 	// currents disagree beyond their sigmas: the current changed between
-	// the walks, or varied during them (walks.go).
+	// the walks, a step's size changed between them (the walks agreeing
+	// on one side of it; a warning), or the current varied during them
+	// (walks.go).
 	KindWalksDiffer Kind = "walks-differ"
 	// KindUnsearched is a stretch of the route inside which two or more
 	// stations in a row give no usable current: no step can be found

@@ -73,10 +73,12 @@ type Route struct {
 	// usable stations; see scatter.go), 1 when it was not.
 	ScatterWidening float64
 	// FirstWalk, when the route was walked more than once and the
-	// walks' currents differ by one ratio (or one change) per walk
-	// (KindWalksDiffer), names the first walk ("day1.csv", "the first
-	// walk"): the steps take every walk's currents at its level (see
-	// Placed.FirstWalkCurrent). Empty otherwise.
+	// walks' currents differ by one ratio (or one change) per walk, or
+	// by one change per walk on one side of a point (a step whose size
+	// changed between the walks; KindWalksDiffer), names the first walk
+	// ("day1.csv", "the first walk"): the steps take every walk's
+	// currents at its level (see Placed.FirstWalkCurrent). Empty
+	// otherwise.
 	FirstWalk string
 }
 
@@ -150,6 +152,9 @@ func Build(stations []Station, set *Settings) (*Route, error) {
 	// AC: changes of phase sized as phasors (phasorstep.go).
 	st = phasorSteps(one, st, set, r.ModelScatter)
 	addRepeats(st, one)
+	if sc != nil && sc.split != nil {
+		splitSteps(st, sc)
+	}
 	r.Findings = append(r.Findings, st...)
 	r.Findings = append(r.Findings, ends...)
 	r.Findings = append(r.Findings, cover(r.Stations, set)...)
@@ -580,4 +585,58 @@ func addRepeats(fs []Finding, one []Placed) {
 			}
 		}
 	}
+}
+
+// splitSteps adds to each current step across the point where the walks
+// start to differ (walkSplit) each later walk's own step there: the steps
+// take the first walk's level, the later walk's currents on the side
+// where they differ less its change, so its own levels are the step's
+// with the change put back, and its size's sigma the step's and the
+// change's in quadrature.
+func splitSteps(st []Finding, sc *walkScaling) {
+	for i := range st {
+		f := &st[i]
+		if f.Kind != KindCurrentStep || !(f.From < sc.split.at && sc.split.at < f.To) {
+			continue
+		}
+		size, okS := findingValue(f, "step")
+		before, okB := findingValue(f, "current before")
+		after, okA := findingValue(f, "current after")
+		if !okS || !okB || !okA {
+			continue
+		}
+		var own []string
+		for _, wl := range sc.walks {
+			d, ok := sc.split.delta[wl.name]
+			if wl == sc.ref || !ok {
+				continue
+			}
+			b, a := before.Value, after.Value
+			if sc.split.after {
+				a += d[0]
+			} else {
+				b += d[0]
+			}
+			verb := "a fall"
+			if math.Abs(a) > math.Abs(b) {
+				verb = "a rise"
+			}
+			own = append(own, fmt.Sprintf("in %s from %.4g A to %.4g A, %s of %s A", walkRef(wl, sc.named), b, a, verb, PlusMinus(math.Abs(math.Abs(b)-math.Abs(a)), math.Hypot(size.Sigma, d[1]))))
+			f.Values = append(f.Values, Value{Name: "step " + wl.name, Value: math.Abs(b) - math.Abs(a), Sigma: math.Hypot(size.Sigma, d[1]), Unit: "A"})
+		}
+		sort.Strings(own)
+		if len(own) > 0 {
+			f.Message += fmt.Sprintf("; this is the step at the level of %s, the walks differing on one side of it (walks-differ): %s", walkRef(sc.ref, sc.named), joinAnd(own))
+		}
+	}
+}
+
+// findingValue returns f's value of that name.
+func findingValue(f *Finding, name string) (Value, bool) {
+	for _, v := range f.Values {
+		if v.Name == name {
+			return v, true
+		}
+	}
+	return Value{}, false
 }

@@ -43,6 +43,12 @@ import (
 // walks (the current varied during them, or a repeat's fit is off).
 // When one change or one ratio per walk accounts for them, the steps take
 // each later walk brought to the first walk's level by it (scaleWalks).
+// When neither does but one change per walk on one side of a point
+// between two sets of repeats does (the walks agree before a step and
+// differ after it, or the other way: the step's size changed between
+// the walks, splitChange), the finding is a warning giving each walk's
+// step there, and the steps take each later walk's stations on that side
+// less its change, so the first walk's step.
 
 // walkAlpha is the chance that repeats of a steady current, their sigmas
 // right, are reported as disagreeing: one run in ten thousand. At one in
@@ -109,6 +115,207 @@ type walkScaling struct {
 	// its Index (the only stations whose walk is known when the walks are
 	// not named).
 	walkOf map[int]string
+	// split, when not nil, is a change that starts at one chainage: only
+	// the stations on its side of it are brought (scaleWalks).
+	split *walkSplit
+}
+
+// walkSplit is a change between the walks that starts at one chainage
+// (splitChange): the walks agree on one side of it and differ by one
+// change per walk on the other.
+type walkSplit struct {
+	// k is the first set of repeats past the point (sets in route
+	// order); at is the chainage halfway between set k-1 and set k.
+	k  int
+	at float64
+	// after is true when the walks differ from set k on, false when they
+	// differ before it.
+	after bool
+	// rest is the chi-square left with the changes taken out.
+	rest float64
+	// delta is each walk's change from the first walk on the side where
+	// they differ, and its sigma, A.
+	delta map[string][2]float64
+	// levels are each walk's levels before and after the point and
+	// their sigmas (before, sigma, after, sigma), A; sizes each walk's
+	// fall across it (before less after) and its sigma, A.
+	levels map[string][4]float64
+	sizes  map[string][2]float64
+}
+
+// differs tells whether a station at chainage c is on the side where the
+// walks differ.
+func (s *walkSplit) differs(c float64) bool {
+	if s.after {
+		return c >= s.at
+	}
+	return c < s.at
+}
+
+// splitChange tries each point between two successive sets of repeats,
+// with the walks differing after it or before it, each later walk by
+// one change from the first walk there, and returns the one that leaves
+// the least chi-square when that is within the 1-walkAlpha quantile of
+// restDOF degrees of freedom (the same as one change per walk across the
+// whole route), or nil. Each side needs two sets held by the first walk
+// and another: one set alone past a point is as well one repeat's fit
+// off (near a bend, the straight-line model's error differing between
+// the walks), which the change of that one set would absorb, and a
+// false warning would follow.
+func splitChange(sets [][]*Placed, perSet []map[string]struct{ v, w float64 }, order []*walkLevel, ref *walkLevel, walkOf func(*Placed, int) string, sig func(*Placed) float64, restDOF int) *walkSplit {
+	if len(sets) < 2 || restDOF <= 0 {
+		return nil
+	}
+	var best *walkSplit
+	for k := 1; k < len(sets); k++ {
+		for _, after := range []bool{true, false} {
+			differs := func(i int) bool { return (i >= k) == after }
+			delta := map[string][2]float64{}
+			ok := false
+			for _, wl := range order[1:] {
+				var dw, dwv float64
+				for i, m := range perSet {
+					if !differs(i) {
+						continue
+					}
+					e, oke := m[wl.name]
+					r, okr := m[ref.name]
+					if !oke || !okr {
+						continue
+					}
+					w := 1 / (1/e.w + 1/r.w)
+					dw += w
+					dwv += w * (e.v - r.v)
+				}
+				if dw > 0 {
+					delta[wl.name] = [2]float64{dwv / dw, math.Sqrt(1 / dw)}
+					ok = true
+				}
+			}
+			if !ok || !bothSides(perSet, k, ref.name, order[1:]) {
+				continue
+			}
+			var rest float64
+			for i, s := range sets {
+				d := func(p *Placed, j int) float64 {
+					if !differs(i) {
+						return 0
+					}
+					return delta[walkOf(p, j)][0]
+				}
+				var sw, swv float64
+				for j, p := range s {
+					w := 1 / (sig(p) * sig(p))
+					sw += w
+					swv += w * (p.Current - d(p, j))
+				}
+				m := swv / sw
+				for j, p := range s {
+					x := p.Current - d(p, j) - m
+					rest += x * x / (sig(p) * sig(p))
+				}
+			}
+			if best == nil || rest < best.rest {
+				best = &walkSplit{k: k, at: (sets[k-1][0].Chainage + sets[k][0].Chainage) / 2, after: after, rest: rest, delta: delta}
+			}
+		}
+	}
+	if best == nil || best.rest > (distuv.ChiSquared{K: float64(restDOF)}).Quantile(1-walkAlpha) {
+		return nil
+	}
+	// Each walk's levels either side, each set weighed alike for every
+	// walk (as walksDiffer's levels), and its fall across the point.
+	common := make([]float64, len(perSet))
+	for i, m := range perSet {
+		var v float64
+		for _, e := range m {
+			v += 1 / e.w
+		}
+		common[i] = 1 / v
+	}
+	best.levels = map[string][4]float64{}
+	best.sizes = map[string][2]float64{}
+	for _, wl := range order {
+		var lv [4]float64
+		okSide := [2]bool{}
+		for side := 0; side < 2; side++ {
+			var sc, scv, scc float64
+			for i, m := range perSet {
+				if (i >= best.k) != (side == 1) {
+					continue
+				}
+				e, ok := m[wl.name]
+				if !ok {
+					continue
+				}
+				sc += common[i]
+				scv += common[i] * e.v
+				scc += common[i] * common[i] / e.w
+			}
+			if sc > 0 {
+				lv[2*side], lv[2*side+1] = scv/sc, math.Sqrt(scc)/sc
+				okSide[side] = true
+			}
+		}
+		best.levels[wl.name] = lv
+		if okSide[0] && okSide[1] {
+			best.sizes[wl.name] = [2]float64{lv[0] - lv[2], math.Hypot(lv[1], lv[3])}
+		}
+	}
+	return best
+}
+
+// bothSides tells whether, on each side of set k, two sets of repeats or
+// more hold the first walk (ref) and another.
+func bothSides(perSet []map[string]struct{ v, w float64 }, k int, ref string, others []*walkLevel) bool {
+	var before, after int
+	for i, m := range perSet {
+		if _, ok := m[ref]; !ok {
+			continue
+		}
+		held := false
+		for _, wl := range others {
+			if _, ok := m[wl.name]; ok {
+				held = true
+			}
+		}
+		if !held {
+			continue
+		}
+		if i < k {
+			before++
+		} else {
+			after++
+		}
+	}
+	return before >= 2 && after >= 2
+}
+
+// message is the walks-differ finding's text for a change that starts
+// at one chainage.
+func (s *walkSplit) message(sets [][]*Placed, order []*walkLevel, ref *walkLevel, named bool, what, test string) string {
+	a, b := sets[s.k-1][0], sets[s.k][0]
+	var sizes, levels, changes []string
+	for _, wl := range order {
+		if sz, ok := s.sizes[wl.name]; ok {
+			sizes = append(sizes, fmt.Sprintf("%s A in %s", PlusMinus(sz[0], sz[1]), walkName(wl, named)))
+		}
+		lv := s.levels[wl.name]
+		levels = append(levels, fmt.Sprintf("%s A and %s A in %s", PlusMinus(lv[0], lv[1]), PlusMinus(lv[2], lv[3]), walkRef(wl, named)))
+	}
+	for _, wl := range order[1:] {
+		if d, ok := s.delta[wl.name]; ok {
+			changes = append(changes, fmt.Sprintf("%s A from %s to %s", PlusMinus(d[0], d[1]), walkRef(ref, named), walkRef(wl, named)))
+		}
+	}
+	side := fmt.Sprintf("agree to their sigmas up to %s (chainage %.1f m) and differ from %s (%.1f m) on", label(a), a.Chainage, label(b), b.Chainage)
+	where := "from " + label(b) + " on"
+	if !s.after {
+		side = fmt.Sprintf("differ up to %s (chainage %.1f m) and agree to their sigmas from %s (%.1f m) on", label(a), a.Chainage, label(b), b.Chainage)
+		where = "up to " + label(a)
+	}
+	return fmt.Sprintf("the change of current between %s and %s differs between the walks: the current falls there by %s (each walk's levels either side over %s: %s), where their sigmas allow no difference (%s; %.3g left with the change taken out %s): the walks %s, by %s; a loss (or a source) there that changed between the walks, not one change of the current along the whole route: each walk's step holds for its own time only; the steps take the first walk's (the currents of the other walks %s less their change, at the level of %s)",
+		label(a), label(b), joinAnd(sizes), what, joinAnd(levels), test, s.rest, where, side, joinAnd(changes), where, walkRef(ref, named))
 }
 
 // walksDiffer returns the finding on repeats that disagree (see above),
@@ -142,7 +349,7 @@ func walksDiffer(ps []Placed, gap float64) ([]Finding, *walkScaling) {
 	// Each set's stations by walk: the inverse-variance mean of a walk's
 	// stations in the set (two of one walk in one set are one), and the
 	// chi-square of the set about its mean.
-	type entry struct{ v, w float64 }
+	type entry = struct{ v, w float64 }
 	perSet := make([]map[string]entry, len(sets))
 	walks := map[string]*walkLevel{}
 	var chi2 float64
@@ -315,6 +522,24 @@ func walksDiffer(ps []Placed, gap float64) ([]Finding, *walkScaling) {
 		proportional = restDOF <= 0 || restQ <= (distuv.ChiSquared{K: float64(restDOF)}).Quantile(1-walkAlpha)
 	}
 
+	// Else a change that starts at one chainage: the walks agree on one
+	// side of a point and differ by one change per walk on the other, the
+	// signature of a step along the route (a loss) whose size changed
+	// between the walks. A loss of 0.4 A one day and 1.0 A the next was
+	// reported as one step of 0.65 +/- 0.15 A, a size neither walk had,
+	// and the disagreement as information blaming the straight-line
+	// model's error (found in review).
+	var split *walkSplit
+	if !steady && !proportional && fitted > 0 {
+		split = splitChange(sets, perSet, order, ref, walkOf, sig, restDOF)
+	}
+	if split != nil {
+		// Each walk's change is then its change where the walks differ.
+		for _, wl := range order[1:] {
+			wl.delta, wl.deltaSigma = split.delta[wl.name][0], split.delta[wl.name][1]
+		}
+	}
+
 	// The finding: over the repeated stations, at the set nearest the
 	// middle of their span.
 	var keys []string
@@ -371,6 +596,15 @@ func walksDiffer(ps []Placed, gap float64) ([]Finding, *walkScaling) {
 		}
 		f.Message = fmt.Sprintf("the current changed between the walks, in proportion along the route (a source turned up or down: every current scaled, a loss's too): %s read %s, %s, the currents scaled by %s, where their sigmas allow no difference (%s): each walk's currents hold for its own time only; for the steps %s (its sigma carried), before the repeats are combined",
 			what, joinAnd(levels), change, joinAnd(factors), test, broughtText(order, ref, named, true))
+	} else if split != nil {
+		f.Message = split.message(sets, order, ref, named, what, test)
+		f.Severity = SeverityWarning
+		f.From, f.To = sets[split.k-1][0].Chainage, sets[split.k][0].Chainage
+		f.Position = sets[split.k][0].Point
+		for _, wl := range order {
+			sz := split.sizes[wl.name]
+			f.Values = append(f.Values, Value{Name: "step " + wl.name, Value: sz[0], Sigma: sz[1], Unit: "A"})
+		}
 	} else {
 		// Not one change per walk: most often the straight-line model's
 		// error differing between the walks near a bend or a change of
@@ -387,10 +621,11 @@ func walksDiffer(ps []Placed, gap float64) ([]Finding, *walkScaling) {
 		f.Message = fmt.Sprintf("repeats disagree beyond their sigmas, and not by one change of current between the walks (%s; %.3g left with each walk's change taken out): %s read %s, most apart at %s (chainage %.1f m; %.3g of the chi-square), which read %s; the straight-line model's error there may differ between the walks (a bend or a change of depth nearby), a repeat's fit may be off, or the current varied during the walks (a load that comes and goes, a rectifier cycling); the repeats are combined for the steps with their sigmas widened by their disagreement",
 			test, rest, what, joinAnd(levels), label(sets[worst][0]), sets[worst][0].Chainage, worstChi2, joinAnd(reads))
 	}
-	if !steady && !proportional {
+	if !steady && !proportional && split == nil {
 		return []Finding{f}, nil
 	}
 	sc := &walkScaling{ref: ref, named: named, proportional: proportional, walks: walks, walkOf: map[int]string{}}
+	sc.split = split
 	for _, s := range sets {
 		for k, p := range s {
 			sc.walkOf[p.Index] = walkOf(p, k)
@@ -453,6 +688,9 @@ func scaleWalks(ps []Placed, sc *walkScaling) []Placed {
 			p.CurrentSigma = math.Hypot(p.CurrentSigma/q, p.Current*rel)
 			p.shift /= q
 		} else {
+			if sc.split != nil && !sc.split.differs(p.Chainage) {
+				continue
+			}
 			p.Current -= wl.delta
 			p.CurrentSigma = math.Hypot(p.CurrentSigma, wl.deltaSigma)
 		}
