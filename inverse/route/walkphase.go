@@ -5,7 +5,6 @@ import (
 	"math"
 	"sort"
 	"strings"
-	"time"
 
 	"gonum.org/v1/gonum/stat/distuv"
 )
@@ -57,9 +56,8 @@ const walkPhaseK = 3.0
 
 // phaseWalk is one walk's repeats, for walkPhases.
 type phaseWalk struct {
-	name  string
-	start time.Time
-	first int
+	name string
+	walkTime
 	// timed is true when every repeat of the walk has a start time: its
 	// drift is then per second of its own time, else per metre of
 	// chainage.
@@ -222,26 +220,17 @@ func walkPhases(ps []Placed, gap float64) ([]Finding, []Placed) {
 			walkOf[p.Index] = name
 			w := walks[name]
 			if w == nil {
-				w = &phaseWalk{name: name, first: p.Index, split: -1}
+				w = &phaseWalk{name: name, walkTime: walkTime{first: p.Index}, split: -1}
 				walks[name] = w
 			}
-			w.first = min(w.first, p.Index)
-			if !p.Start.IsZero() && (w.start.IsZero() || p.Start.Before(w.start)) {
-				w.start = p.Start
-			}
+			w.see(p)
 		}
 	}
 	order := make([]*phaseWalk, 0, len(walks))
 	for _, w := range walks {
 		order = append(order, w)
 	}
-	sort.Slice(order, func(a, b int) bool {
-		x, y := order[a], order[b]
-		if !x.start.IsZero() && !y.start.IsZero() && !x.start.Equal(y.start) {
-			return x.start.Before(y.start)
-		}
-		return x.first < y.first
-	})
+	sort.Slice(order, func(a, b int) bool { return order[a].before(order[b].walkTime) })
 	ref := order[0]
 	for _, w := range order {
 		w.timed = !w.start.IsZero()

@@ -62,11 +62,34 @@ import (
 // single-line is some 270 sigmas.
 const walkAlpha = 1e-4
 
+// walkTime is when a walk of a route began: its earliest station's
+// Start (zero when not known) and the smallest Index of its stations.
+type walkTime struct {
+	start time.Time
+	first int
+}
+
+// see takes station p of the walk into its start and first index.
+func (w *walkTime) see(p *Placed) {
+	w.first = min(w.first, p.Index)
+	if !p.Start.IsZero() && (w.start.IsZero() || p.Start.Before(w.start)) {
+		w.start = p.Start
+	}
+}
+
+// before orders walks by their start times when both are known and
+// differ, otherwise by their first stations' index.
+func (w walkTime) before(o walkTime) bool {
+	if !w.start.IsZero() && !o.start.IsZero() && !w.start.Equal(o.start) {
+		return w.start.Before(o.start)
+	}
+	return w.first < o.first
+}
+
 // walkLevel is one walk's stations among the repeats.
 type walkLevel struct {
-	name  string
-	start time.Time // its earliest station's Start; zero when not known
-	first int       // the smallest Index of its stations
+	name string
+	walkTime
 	// level and sigma are the mean of its repeated stations' currents,
 	// each set weighed alike for every walk (see walksDiffer), A; delta and deltaSigma its change from the
 	// first walk over the sets both hold, A; sets counts those sets.
@@ -383,13 +406,10 @@ func walksDiffer(ps []Placed, gap float64) ([]Finding, *walkScaling) {
 			perSet[i][name] = e
 			wl := walks[name]
 			if wl == nil {
-				wl = &walkLevel{name: name, first: p.Index}
+				wl = &walkLevel{name: name, walkTime: walkTime{first: p.Index}}
 				walks[name] = wl
 			}
-			wl.first = min(wl.first, p.Index)
-			if !p.Start.IsZero() && (wl.start.IsZero() || p.Start.Before(wl.start)) {
-				wl.start = p.Start
-			}
+			wl.see(p)
 		}
 	}
 	if dof == 0 || chi2 <= (distuv.ChiSquared{K: float64(dof)}).Quantile(1-walkAlpha) {
@@ -399,13 +419,7 @@ func walksDiffer(ps []Placed, gap float64) ([]Finding, *walkScaling) {
 	for _, wl := range walks {
 		order = append(order, wl)
 	}
-	sort.Slice(order, func(a, b int) bool {
-		x, y := order[a], order[b]
-		if !x.start.IsZero() && !y.start.IsZero() && !x.start.Equal(y.start) {
-			return x.start.Before(y.start)
-		}
-		return x.first < y.first
-	})
+	sort.Slice(order, func(a, b int) bool { return order[a].before(order[b].walkTime) })
 	ref := order[0]
 	// Each walk's level over the sets it holds, and its change from the
 	// first walk over the sets both hold. The levels weigh each set alike
