@@ -3,51 +3,34 @@ package report
 import (
 	"fmt"
 	"math"
+	"os"
+	"path/filepath"
 	"strings"
 	"testing"
 
 	"undercurrent/inverse/simulate"
 )
 
-// faultBelowParallelScenario is an invented survey at Tallow Brook: a
-// feeder 1.0 m below the ground along the route (x = 0, running north)
-// carrying 25 A, of which 25 - after A leave it at y = at m (a polyline
-// whose pieces carry 25 A and after A: an earth fault), beside a supply cable
-// carrying 18 A the whole way, 3 m to the east and 0.8 m below the ground.
-// Past the fault the cable is the stronger. Sensors 0.3 m up, 5 nT noise,
-// 12 traverses 12 m long, 20 m apart (y = 20 to 240 m).
-func faultBelowParallelScenario(at, after float64, seed int64) string {
-	return fmt.Sprintf(`
-name = "tallow-brook-fault"
-site = "Tallow Brook feeder and supply cable (invented)"
-seed = %d
-start = "2026-06-03T09:00:00Z"
-[earth]
-field_nt = [-180.0, 19150.0, -45250.0]
-[sensor]
-height_m = 0.3
-noise_nt = 5.0
-[survey]
-route = [[0.0, 0.0], [0.0, 260.0]]
-count = 12
-spacing_m = 20.0
-first_at_m = 20.0
-length_m = 12.0
-speed_m_s = 0.5
-sample_spacing_m = 0.1
-turn_s = 10.0
-[[conductor]]
-name = "feeder"
-kind = "polyline"
-vertices = [[0.0, -300.0, -1.0], [0.0, %g, -1.0], [0.0, 800.0, -1.0]]
-currents_a = [25.0, %g]
-[[conductor]]
-name = "supply cable"
-kind = "line"
-point = [3.0, 0.0, -0.8]
-direction = [0.0, 1.0, 0.0]
-current_a = 18.0
-`, seed, at, after)
+// faultBelowParallelScenario is testdata/scenarios/open/tallow-brook-fault.toml
+// (an invented survey at Tallow Brook: a feeder 1.0 m below the ground along
+// the route carrying 25 A, beside a supply cable carrying 18 A the whole
+// way, 3 m to the east and 0.8 m below the ground) with the fault at y = at
+// m, after A left in the feeder past it and the given seed.
+func faultBelowParallelScenario(t *testing.T, at, after float64, seed int64) string {
+	t.Helper()
+	raw, err := os.ReadFile(filepath.Join("..", "testdata", "scenarios", "open", "tallow-brook-fault.toml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	text := strings.NewReplacer("seed = 501", fmt.Sprintf("seed = %d", seed),
+		"[0.0, 130.0, -1.0]", fmt.Sprintf("[0.0, %g, -1.0]", at),
+		"currents_a = [25.0, 12.0]", fmt.Sprintf("currents_a = [25.0, %g]", after)).Replace(string(raw))
+	for _, want := range []string{fmt.Sprintf("seed = %d", seed), fmt.Sprintf("[0.0, %g, -1.0]", at), fmt.Sprintf("currents_a = [25.0, %g]", after)} {
+		if !strings.Contains(text, want) {
+			t.Fatalf("tallow-brook-fault.toml: %q not set (the file no longer holds the values the test replaces)", want)
+		}
+	}
+	return text
 }
 
 // TestFaultBelowParallelCableKeepsConductor1: an earth fault takes 13 A of
@@ -86,7 +69,7 @@ func TestFaultBelowParallelCableKeepsConductor1(t *testing.T) {
 		for _, seed := range c.seeds {
 			t.Run(fmt.Sprintf("%s-seed%d", c.name, seed), func(t *testing.T) {
 				want := c.after - 25
-				sc, err := simulate.Parse([]byte(faultBelowParallelScenario(c.at, c.after, seed)), c.name)
+				sc, err := simulate.Parse([]byte(faultBelowParallelScenario(t, c.at, c.after, seed)), c.name)
 				if err != nil {
 					t.Fatal(err)
 				}

@@ -3,45 +3,26 @@ package main
 import (
 	"fmt"
 	"math"
+	"os"
+	"path/filepath"
 	"strings"
 	"testing"
 )
 
-// faultBelowParallelScenario is an invented survey at Tallow Brook (as in
-// report's test of the same name): a feeder 1.0 m down along the route
-// (x = 0, running north) carrying 25 A, of which 13 A leave it at y = AT m
-// (an earth fault), beside an 18 A supply cable 3 m east and 0.8 m down the
-// whole way; 12 traverses 20 m apart from y = 20 m, 5 nT noise.
-const faultBelowParallelScenario = `name = "tallow-brook-fault"
-site = "Tallow Brook feeder and supply cable (invented)"
-seed = SEED
-start = "2026-06-03T09:00:00Z"
-[earth]
-field_nt = [-180.0, 19150.0, -45250.0]
-[sensor]
-height_m = 0.3
-noise_nt = 5.0
-[survey]
-route = [[0.0, 0.0], [0.0, 260.0]]
-count = 12
-spacing_m = 20.0
-first_at_m = 20.0
-length_m = 12.0
-speed_m_s = 0.5
-sample_spacing_m = 0.1
-turn_s = 10.0
-[[conductor]]
-name = "feeder"
-kind = "polyline"
-vertices = [[0.0, -300.0, -1.0], [0.0, AT, -1.0], [0.0, 800.0, -1.0]]
-currents_a = [25.0, 12.0]
-[[conductor]]
-name = "supply cable"
-kind = "line"
-point = [3.0, 0.0, -0.8]
-direction = [0.0, 1.0, 0.0]
-current_a = 18.0
-`
+// faultBelowParallelScenario is testdata/scenarios/open/tallow-brook-fault.toml
+// (as in report's test of the same name): a feeder 1.0 m down along the
+// route (x = 0, running north) carrying 25 A, of which 13 A leave it at
+// y = 130 m (an earth fault; the tests move it), beside an 18 A supply
+// cable 3 m east and 0.8 m down the whole way; 12 traverses 20 m apart
+// from y = 20 m, 5 nT noise.
+func faultBelowParallelScenario(t *testing.T) string {
+	t.Helper()
+	raw, err := os.ReadFile(filepath.Join("..", "..", "testdata", "scenarios", "open", "tallow-brook-fault.toml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	return string(raw)
+}
 
 // TestLocateFaultBelowParallelCable: the fault leaves the feeder weaker
 // than the cable beside it, midway (y = 130 m, chainage 110 m) and between
@@ -66,7 +47,7 @@ func TestLocateFaultBelowParallelCable(t *testing.T) {
 	}
 	for _, c := range cases {
 		name := fmt.Sprintf("fault%.0f-seed%d", c.at, c.seed)
-		text := strings.NewReplacer("SEED", fmt.Sprint(c.seed), "AT", fmt.Sprintf("%.1f", c.at)).Replace(faultBelowParallelScenario)
+		text := strings.NewReplacer("seed = 501", fmt.Sprintf("seed = %d", c.seed), "[0.0, 130.0, -1.0]", fmt.Sprintf("[0.0, %.1f, -1.0]", c.at)).Replace(faultBelowParallelScenario(t))
 		args := []string{"--group-by", "group", "--reference-z", "0"}
 		if c.ac {
 			name += "-ac"
