@@ -574,6 +574,9 @@ type survey struct {
 	// rewalks numbers the walks after the first of traverses walked
 	// again in one log (rewalks.go), keyed by rewalkKey.
 	rewalks map[string]int
+	// reused are the renamings of group values several logs use again
+	// (loggroups.go nameReusedGroups).
+	reused reusedNames
 	// windowN are the AC windows' sample counts, and windowSigma their
 	// phasors' noise per axis from the windows' own sine-fit residuals
 	// (calibrate.Window.Sigma), nT.
@@ -812,7 +815,9 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		// A traverse name used again in another log for another traverse,
 		// told apart once every log is read, so that the earliest keeps
 		// the name (loggroups.go).
-		sv.alerts = append(sv.alerts, nameReusedGroups(logs, read)...)
+		var as []string
+		as, sv.reused = nameReusedGroups(logs, read)
+		sv.alerts = append(sv.alerts, as...)
 	}
 	var turns offsetTurn
 	var swings swing
@@ -2015,7 +2020,7 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 			fits[i].PhaseRampHz, fits[i].PhaseRampSigmaHz = g.ramp.hz, g.ramp.sigma
 		}
 		fits[i].MeasuredNoise = g.measuredNoise(sv.ac)
-		fits[i].Traverse = traverseOf(g.key, g.from, sv.logs, sv.rewalks)
+		fits[i].Traverse = traverseOf(g.key, g.from, sv.rewalks, sv.reused)
 		if len(sv.logs) > 1 {
 			fits[i].Walk = logLabel(g.from, sv.logs)
 			if n := sv.rewalks[rewalkKey(g.from, g.key)]; n > 1 {

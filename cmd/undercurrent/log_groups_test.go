@@ -164,7 +164,7 @@ func TestReusedGroupPooledOnlyTogether(t *testing.T) {
 		{"a sensor 1 m aside, its clock five minutes off", log("b.csv", 0, 1, 300, 200), true},
 	} {
 		first := log("a.csv", 0, 0, 0, 200)
-		w := nameReusedGroups([]string{"a.csv", "b.csv"}, []*ingest.Samples{first, c.s})
+		w, _ := nameReusedGroups([]string{"a.csv", "b.csv"}, []*ingest.Samples{first, c.s})
 		got := c.s.Group[0] != "T01"
 		if got != c.renamed {
 			t.Errorf("%s: renamed %v (group %q), want %v; warnings %q", c.name, got, c.s.Group[0], c.renamed, w)

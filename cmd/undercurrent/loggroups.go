@@ -210,6 +210,16 @@ func together(g, p *logPart) bool {
 	return math.IsNaN(gap) || gap <= reusedApartS || !sameGround(g, p)
 }
 
+// reusedNames are the renamings of nameReusedGroups, keyed by rewalkKey:
+// value gives, for each name given (LOG:T05) in a log, the log's own
+// group value it replaced (T05); apart gives, for each group value of a
+// log renamed as another traverse under the same name (not covering the
+// first's ground again), the name given. A renamed group that covers the
+// same ground again is the traverse walked again, under the shared name.
+type reusedNames struct {
+	value, apart map[string]string
+}
+
 // nameReusedGroups tells apart the traverses that several logs (logs,
 // read as all) give the same group value. The parts of one value are
 // taken in the order of their first readings' times (the order the logs
@@ -220,10 +230,12 @@ func together(g, p *logPart) bool {
 // of its own. The name thus stays with the earliest log whatever the
 // order on the command line (before, the first log given kept the bare
 // names, and the names in every output changed with the order; found in
-// review). It returns a warning for each log whose groups were renamed.
-func nameReusedGroups(logs []string, all []*ingest.Samples) []string {
+// review). It returns a warning for each log whose groups were renamed,
+// and the renamings, for the route to pair walks (traverseOf).
+func nameReusedGroups(logs []string, all []*ingest.Samples) ([]string, reusedNames) {
+	given := reusedNames{value: map[string]string{}, apart: map[string]string{}}
 	if len(all) < 2 {
-		return nil
+		return nil, given
 	}
 	parts := make([]map[string]*logPart, len(all))
 	var values []string
@@ -307,6 +319,10 @@ func nameReusedGroups(logs []string, all []*ingest.Samples) []string {
 					d, along = math.Abs(l.across(p.xy)), math.Abs(l.middle(p.xy)-l.middle(first.at.xy))
 				}
 				renamed[p.log] = append(renamed[p.log], renaming{value: v, name: in.name, dist: d, gap: gap, again: again, along: along})
+				given.value[rewalkKey(logs[p.log], in.name)] = v
+				if !again {
+					given.apart[rewalkKey(logs[p.log], v)] = in.name
+				}
 				apart = true
 			}
 			in.at.span.addSpan(p.span)
@@ -387,7 +403,7 @@ func nameReusedGroups(logs []string, all []*ingest.Samples) []string {
 		warns = append(warns, fmt.Sprintf("%s: %s also in %s, but %s, %s: taken for another traverse under the same name, and fitted as %s. One group value in several logs is one group where its readings lie within %g m of each other, unless they cover the same ground again more than %g s apart (a cart's two sensors, or a traverse continued in the next file after any pause, are one group; a traverse walked again later is another); to name the groups otherwise, rename them in one of the files",
 			logs[k], what, joinAnd(from), reusedWhere(elsewhere, again, timed, joinAnd(keepers)), keeps, now, reusedApartM, reusedApartS))
 	}
-	return warns
+	return warns, given
 }
 
 // spread gathers the group values of renamed parts with the range of

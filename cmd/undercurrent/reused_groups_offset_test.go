@@ -58,7 +58,7 @@ func TestReusedGroupsWarningGivesOffset(t *testing.T) {
 			[]string{"the readings of T01, T02 and T03 lie 134 m and 24 h apart from those of a.csv, and those of T04, T05, T06 and T07 cover the same ground again 24 h later, 0.5 m across the lines of those of a.csv"}, "0 m"},
 	} {
 		first := rowsOf(s, all, nil)
-		w := nameReusedGroups([]string{"a.csv", "b.csv"}, []*ingest.Samples{first, c.later})
+		w, _ := nameReusedGroups([]string{"a.csv", "b.csv"}, []*ingest.Samples{first, c.later})
 		if len(w) != 1 {
 			t.Errorf("%s: %d warnings, want one: %q", c.name, len(w), w)
 			continue

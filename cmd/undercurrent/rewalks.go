@@ -295,20 +295,29 @@ func walksOrdinal(k int) string {
 // traverseOf names the traverse the group key of the log from walks, for
 // the route to pair its walks (route.Station.Traverse): the key less the
 // log's label that several logs give a value used again (LOG:T04,
-// nameReusedGroups) and less the walk's number of a traverse walked again
-// in one log (T04 (walk 2), splitRewalkedGroups; rewalks as it returns
-// them). A value used again for another traverse far along the route
-// shares the name too: the route pairs only walks less than half its
-// spacing apart along it.
-func traverseOf(key, from string, logs []string, rewalks map[string]int) string {
+// nameReusedGroups; reused as it returns them) where it covers the first
+// log's ground again, and less the walk's number of a traverse walked
+// again in one log (T04 (walk 2), splitRewalkedGroups; rewalks as it
+// returns them). A group renamed as another traverse under the same name
+// keeps its own name (LOG:T04), and so do its later walks: infill
+// traverses 8 m past the first day's on 20 m spacing, numbered from T01
+// again, had shared the first day's names and been paired with them as
+// repeats (moved 8 m, and a false walks-differ; found in review), though
+// the run's own warning called them other traverses. A value used again
+// far along the route shares no name either way: the route pairs only
+// walks less than half its spacing apart along it.
+func traverseOf(key, from string, rewalks map[string]int, reused reusedNames) string {
 	t := key
-	if len(logs) > 1 {
-		t = strings.TrimPrefix(t, logLabel(from, logs)+":")
+	if v, ok := reused.value[rewalkKey(from, key)]; ok {
+		t = v
 	}
 	if n := rewalks[rewalkKey(from, t)]; n > 1 {
 		if i := strings.LastIndex(t, " (walk "); i > 0 {
 			t = t[:i]
 		}
+	}
+	if own, ok := reused.apart[rewalkKey(from, t)]; ok {
+		return own
 	}
 	return t
 }
