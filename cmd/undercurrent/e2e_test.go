@@ -106,6 +106,17 @@ type docFinding struct {
 	} `json:"values"`
 }
 
+// value returns the finding's value of that name and its sigma, zeros when
+// it has none.
+func (f docFinding) value(name string) (v, sigma float64) {
+	for _, x := range f.Values {
+		if x.Name == name {
+			return x.Value, x.Sigma
+		}
+	}
+	return 0, 0
+}
+
 type docSource struct {
 	Kind         string     `json:"kind"`
 	Point        [3]float64 `json:"point_m"`

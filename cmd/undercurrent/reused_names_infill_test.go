@@ -145,15 +145,8 @@ func infillNotPaired(t *testing.T, again bool) {
 			t.Errorf("a walks-differ finding, though no traverse was walked twice: %s", f.Message)
 		case "current-step":
 			steps++
-			var size, sizeSigma, at, atSigma float64
-			for _, v := range f.Values {
-				switch v.Name {
-				case "step":
-					size, sizeSigma = v.Value, v.Sigma
-				case "location (chainage)":
-					at, atSigma = v.Value, v.Sigma
-				}
-			}
+			size, sizeSigma := f.value("step")
+			at, atSigma := f.value("location (chainage)")
 			if !(sizeSigma > 0) || math.Abs(size+3) > 4*sizeSigma {
 				t.Errorf("current step %.3f ± %.3f A, want -3 A within 4 sigma", size, sizeSigma)
 			}

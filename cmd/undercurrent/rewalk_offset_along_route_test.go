@@ -169,15 +169,8 @@ func TestRewalkOffsetAlongRoutePaired(t *testing.T) {
 				differ++
 			case "current-step":
 				steps++
-				var size, sizeSigma, at, atSigma float64
-				for _, v := range f.Values {
-					switch v.Name {
-					case "step":
-						size, sizeSigma = v.Value, v.Sigma
-					case "location (chainage)":
-						at, atSigma = v.Value, v.Sigma
-					}
-				}
+				size, sizeSigma := f.value("step")
+				at, atSigma := f.value("location (chainage)")
 				if !(sizeSigma > 0) || math.Abs(size+3) > 4*sizeSigma {
 					t.Errorf("%s: current step %.3f ± %.3f A, want -3 A (the first walk's loss) within 4 sigma", c.name, size, sizeSigma)
 				}
