@@ -82,7 +82,7 @@ func TestPersistentOverCurrentAlarmedOnce(t *testing.T) {
 
 // The processor side of the latch: four windows over max_current, then
 // one under it, give one alarm at the onset and one marked cleared, with
-// the count of windows it held. Simulated truth: synthWindow's currents.
+// the count of windows it held, the window's own value and the peak. Simulated truth: synthWindow's currents.
 func TestConditionAlarmClearedWhenItEnds(t *testing.T) {
 	site := harrowFen(t)
 	a := site.Asset("fenwick-lane")
@@ -114,8 +114,9 @@ func TestConditionAlarmClearedWhenItEnds(t *testing.T) {
 	if len(raised) != 1 || raised[0].Window != 1 {
 		t.Errorf("over-current of go raised %+v, want once in window 1", raised)
 	}
-	if len(cleared) != 1 || cleared[0].Window != 5 || cleared[0].Windows != 4 || cleared[0].Since != 0.5 || math.Abs(cleared[0].Value-133) > 1 {
-		t.Errorf("over-current of go cleared %+v, want once in window 5, after 4 windows since 0.5 s, peak about 133 A", cleared)
+	if len(cleared) != 1 || cleared[0].Window != 5 || cleared[0].Windows != 4 || cleared[0].Since != 0.5 ||
+		math.Abs(cleared[0].Value-100) > 1 || math.Abs(cleared[0].Peak-133) > 1 || cleared[0].Threshold != 120 {
+		t.Errorf("over-current of go cleared %+v, want once in window 5, after 4 windows since 0.5 s, value about 100 A (this window's), peak about 133 A, threshold 120 A", cleared)
 	}
 	if len(cleared) == 1 && !strings.Contains(cleared[0].Message, "cleared") {
 		t.Errorf("cleared message %q", cleared[0].Message)

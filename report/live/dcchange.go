@@ -313,6 +313,7 @@ func (p *processor) currentAlarms(w *window, i int, name string, cur, total floa
 		// An AC conductor's total RMS with its harmonics, which heats it.
 		peak, what = total, fmt.Sprintf(" RMS with its harmonics (the fundamental %.4g A)", cur)
 	}
+	p.setLevel(AlarmOverCurrent, name, peak)
 	if t := a.Alarms.MaxCurrent; t > 0 && math.Abs(peak) > t {
 		out = append(out, p.alarm(w, AlarmOverCurrent, name, peak, t,
 			fmt.Sprintf("conductor %s carries %.4g A%s, above %.4g A", name, peak, what, t)))

@@ -193,10 +193,18 @@ type Alarm struct {
 	// Cleared marks the record that a condition alarmed at its onset
 	// (see latchedKinds) no longer holds: its window is the first without
 	// it, Windows counts the windows it held in, Since is the start of the
-	// window it was raised in, and Value is its largest value.
+	// window it was raised in, Value is the window's own value (under
+	// Threshold; 0 for a sensor condition) and Peak the largest value
+	// while it held. Cleared records are not counted in uc_alarms_total.
 	Cleared bool    `json:"cleared,omitempty"`
 	Windows int     `json:"windows,omitempty"`
 	Since   float64 `json:"since,omitempty"`
+	Peak    float64 `json:"peak,omitempty"`
+	// Worsened marks an over-current or imbalance raised again while it
+	// holds because its value reached WorsenFactor times the value last
+	// alarmed (Previous); Since is the start of the window of its onset.
+	Worsened bool    `json:"worsened,omitempty"`
+	Previous float64 `json:"previous,omitempty"`
 }
 
 // OngoingAlarm is a condition raised in an earlier window that still
@@ -208,6 +216,9 @@ type OngoingAlarm struct {
 	Since float64 `json:"since"`
 	// Windows counts the windows it has held in, this one included.
 	Windows int `json:"windows"`
+	// Value is this window's value (over-current, imbalance, and a
+	// stuck or saturated sensor's reading; 0 for a silent sensor).
+	Value float64 `json:"value"`
 }
 
 // Alarm kinds.

@@ -49,7 +49,7 @@ func newMetrics() *metrics {
 	m.estimates = prometheus.NewCounterVec(prometheus.CounterOpts{Name: "uc_estimates_total",
 		Help: "Estimates published, by asset and result (published, duplicate, failed; empty: a window closed on idle with too few samples from every sensor, not published)."}, []string{"asset", "result"})
 	m.alarms = prometheus.NewCounterVec(prometheus.CounterOpts{Name: "uc_alarms_total",
-		Help: "Alarms raised, by asset and kind."}, []string{"asset", "kind"})
+		Help: "Alarms raised, by asset and kind (onsets and worsenings of a lasting condition; its cleared records are not counted)."}, []string{"asset", "kind"})
 	m.stage = prometheus.NewHistogramVec(prometheus.HistogramOpts{Name: "uc_stage_seconds",
 		Help:    "Time spent per stage (decode, assemble, reduce, solve, publish, checkpoint).",
 		Buckets: prometheus.ExponentialBuckets(1e-6, 4, 12)}, []string{"stage"})

@@ -35,6 +35,10 @@ type processor struct {
 	// active holds the latched conditions that still hold, by
 	// latchKey (see latch); checkpointed as checkpoint.Ongoing.
 	active map[string]*latchedState
+	// level holds this window's over-current and imbalance values by
+	// latch key, also when under their threshold (solve sets them, latch
+	// reads them for a Cleared alarm's Value and then empties them).
+	level map[string]float64
 	// prevAt is the end of the window prev was taken from (0: not
 	// known), so that a step across a gap says so (currentAlarms).
 	prevAt float64
@@ -710,7 +714,11 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 			}
 			sum += v
 		}
-		if imb := cmplxAbs(sum); all && imb > a.Alarms.MaxImbalance {
+		imb := cmplxAbs(sum)
+		if all {
+			p.setLevel(AlarmImbalance, "", imb)
+		}
+		if all && imb > a.Alarms.MaxImbalance {
 			alarms = append(alarms, p.alarm(w, AlarmImbalance, "", imb, a.Alarms.MaxImbalance,
 				fmt.Sprintf("go and return currents differ by %.4g A (leakage?)", imb)))
 		}

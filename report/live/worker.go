@@ -855,7 +855,7 @@ func (w *assetWorker) publishAlarmAck(al Alarm, id string, count bool) (*jetstre
 	if err != nil {
 		return nil, err
 	}
-	if count && !ack.Duplicate {
+	if count && !ack.Duplicate && !al.Cleared {
 		w.svc.met.alarms.WithLabelValues(w.asset.Name, al.Kind).Inc()
 	}
 	return ack, nil
