@@ -69,12 +69,7 @@ phase_deg = 270.0
 // poor fits within the step's bracket name the step as the likely cause.
 func TestACFaultReportGivesPhase(t *testing.T) {
 	dir := t.TempDir()
-	toml := filepath.Join(dir, "quillon.toml")
-	if err := os.WriteFile(toml, []byte(quillonFault), 0o644); err != nil {
-		t.Fatal(err)
-	}
-	log := filepath.Join(dir, "quillon.csv")
-	mustCLI(t, "simulate", toml, "-o", log)
+	log := simulateText(t, dir, "quillon", quillonFault, ".csv")
 	out := filepath.Join(dir, "results")
 	mustCLI(t, "locate", "--freq", "50", "--group-by", "group", "--reference-z", "0", log, "-o", out)
 	html, err := os.ReadFile(filepath.Join(out, "report.html"))

@@ -3,8 +3,6 @@ package main
 import (
 	"fmt"
 	"math"
-	"os"
-	"path/filepath"
 	"strings"
 	"testing"
 
@@ -26,12 +24,7 @@ func TestMislabelOneSpacingOverSplit(t *testing.T) {
 	dir := t.TempDir()
 	for _, spacing := range []float64{5, 20} {
 		tag := fmt.Sprintf("s%g", spacing)
-		toml := filepath.Join(dir, tag+".toml")
-		if err := os.WriteFile(toml, []byte(corranLey(spacing, 8, 1000, 25, 25, 63, "2026-09-14T09:00:00Z")), 0o644); err != nil {
-			t.Fatal(err)
-		}
-		path := filepath.Join(dir, tag+".csv")
-		mustCLI(t, "simulate", toml, "-o", path)
+		path := simulateText(t, dir, tag, corranLey(spacing, 8, 1000, 25, 25, 63, "2026-09-14T09:00:00Z"), ".csv")
 		s, err := ingest.ReadSamples(path)
 		if err != nil {
 			t.Fatal(err)

@@ -74,15 +74,7 @@ func TestReusedNamesInfillNotPaired(t *testing.T) {
 // day's T05.
 func infillNotPaired(t *testing.T, again bool) {
 	dir := t.TempDir()
-	sim := func(name, sc string) string {
-		toml := filepath.Join(dir, name+".toml")
-		if err := os.WriteFile(toml, []byte(sc), 0o644); err != nil {
-			t.Fatal(err)
-		}
-		log := filepath.Join(dir, name+".csv")
-		mustCLI(t, "simulate", toml, "-o", log)
-		return log
-	}
+	sim := func(name, sc string) string { return simulateText(t, dir, name, sc, ".csv") }
 	logs := []string{sim("day1", wrayFold(20, 71, "2026-06-01T09:00:00Z"))}
 	stations := 20
 	if again {

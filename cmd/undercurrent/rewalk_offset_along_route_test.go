@@ -88,12 +88,7 @@ func TestRewalkOffsetAlongRoutePaired(t *testing.T) {
 			corranLey(c.spacing, c.count, c.loss, 25, 22, 61, "2026-09-14T09:00:00Z"),
 			corranLey(c.spacing, c.count, c.loss, 27.5, 24.2, 62, "2026-09-15T09:00:00Z"),
 		} {
-			toml := filepath.Join(dir, fmt.Sprintf("%s-day%d.toml", tag, d+1))
-			if err := os.WriteFile(toml, []byte(sc), 0o644); err != nil {
-				t.Fatal(err)
-			}
-			logs[d] = filepath.Join(dir, fmt.Sprintf("%s-day%d.csv", tag, d+1))
-			mustCLI(t, "simulate", toml, "-o", logs[d])
+			logs[d] = simulateText(t, dir, fmt.Sprintf("%s-day%d", tag, d+1), sc, ".csv")
 		}
 		day2, err := ingest.ReadSamples(logs[1])
 		if err != nil {
