@@ -285,9 +285,10 @@ type Group struct {
 	Noise float64 `json:"noise_nt,omitempty"`
 	// ResidualLag1 is the lag-1 autocorrelation of a DC fit's residuals
 	// along the readings (pooled over the axes), and SigmaWidening the
-	// factor by which every sigma of the fit was widened for it
-	// (inverse.Result.SerialCorrelation and SigmaWidening): absent when
-	// not widened, and for AC.
+	// factor by which the first line's current's sigma was widened for it
+	// (each other parameter is widened by its own factor; see
+	// inverse.Result.SerialCorrelation and SigmaWidening): absent when not
+	// widened, and for AC.
 	ResidualLag1  float64 `json:"residual_lag1,omitempty"`
 	SigmaWidening float64 `json:"sigma_widening,omitempty"`
 	// ReferenceNoise is the group's reference reading noise, nT: the
