@@ -200,11 +200,16 @@ type Alarm struct {
 	Windows int     `json:"windows,omitempty"`
 	Since   float64 `json:"since,omitempty"`
 	Peak    float64 `json:"peak,omitempty"`
-	// Worsened marks an over-current or imbalance raised again while it
-	// holds because its value reached WorsenFactor times the value last
-	// alarmed (Previous); Since is the start of the window of its onset.
+	// Worsened marks an over-current, imbalance, degraded fit or
+	// inconsistent sensor raised again while it holds because it grew by
+	// WorsenFactor over the value last alarmed (Previous: a current, or a
+	// reduced chi-square, grown by WorsenFactor in its square root); Since
+	// is the start of the window of its onset.
 	Worsened bool    `json:"worsened,omitempty"`
 	Previous float64 `json:"previous,omitempty"`
+	// fitFailed marks the degraded alarm of a window that could not be
+	// solved (not encoded: its message and threshold 0 tell it).
+	fitFailed bool
 }
 
 // OngoingAlarm is a condition raised in an earlier window that still
@@ -216,8 +221,10 @@ type OngoingAlarm struct {
 	Since float64 `json:"since"`
 	// Windows counts the windows it has held in, this one included.
 	Windows int `json:"windows"`
-	// Value is this window's value (over-current, imbalance, and a
-	// stuck or saturated sensor's reading; 0 for a silent sensor).
+	// Value is this window's value (over-current, imbalance, a stuck or
+	// saturated sensor's reading, a degraded fit's or an inconsistent
+	// sensor's reduced chi-square, an implausible check's value; 0 for a
+	// silent sensor and a failed window).
 	Value float64 `json:"value"`
 }
 

@@ -195,27 +195,31 @@ const dominantFall = 0.9
 // only whose removal brings the fit within max_chi2), so that among
 // sensors that fit as well either way none is blamed. It returns the
 // window without them, their names, and for each its reading's departure
-// from the rest's fit; nil when no such set is found (the model misses
-// the readings as a whole: an extended conductor, a wrong geometry).
-func (p *processor) isolate(r *reduced) (*reduced, []string, []string) {
+// from the rest's fit, and the judged reduced chi-square of the window
+// with it (the sensors found before it left out); nil when no such set
+// is found (the model misses the readings as a whole: an extended
+// conductor, a wrong geometry).
+func (p *processor) isolate(r *reduced) (*reduced, []string, []string, []float64) {
 	max := p.asset.Alarms.MaxChi2
 	cur := r
 	var names, why []string
+	var reds []float64
 	for len(names) < (len(r.used)-1)/2 {
 		jin, ok := p.judged(cur)
 		if !ok {
-			return nil, nil, nil
+			return nil, nil, nil, nil
 		}
 		o, err := p.est.Solve(jin)
 		if err != nil || o.DOF <= 0 {
-			return nil, nil, nil
+			return nil, nil, nil, nil
 		}
 		sh := p.shares(cur, o.Chi2)
 		if len(sh) == 0 || sh[0].fall < dominantFall*o.Chi2 {
-			return nil, nil, nil
+			return nil, nil, nil, nil
 		}
 		best := sh[0]
 		names = append(names, best.name)
+		reds = append(reds, o.Chi2/float64(o.DOF))
 		why = append(why, fmt.Sprintf("the window's chi-square falls from %.3g to %.3g (reduced %.3g) without it", o.Chi2, o.Chi2-best.fall, best.red))
 		next := cur.without(best.k)
 		if best.red <= max {
@@ -226,13 +230,13 @@ func (p *processor) isolate(r *reduced) (*reduced, []string, []string) {
 				}
 			}
 			if good != 1 {
-				return nil, nil, nil
+				return nil, nil, nil, nil
 			}
-			return next, names, why
+			return next, names, why, reds
 		}
 		cur = next
 	}
-	return nil, nil, nil
+	return nil, nil, nil, nil
 }
 
 // worstSensors names the sensors with the largest shares of a window's
