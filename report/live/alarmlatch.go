@@ -22,7 +22,9 @@ import (
 // first window where it has grown by WorsenFactor over the value last
 // alarmed. So a condition lasting a day is two alarms, not one per
 // window, and cannot bury a new alarm in the listings, while one that
-// grows is alarmed again as it grows. Events (step, data-lost) are
+// grows is alarmed again as it grows. A gap in the data of the service's
+// silent_after or more ends the hold: a condition that holds again after
+// it is raised anew (Alarm.AfterGap). Events (step, data-lost) are
 // raised in every window they concern.
 //
 // A degraded alarm of a window that could not be solved (quality
@@ -109,6 +111,12 @@ type latchedState struct {
 	// Failed marks the degraded condition of windows that could not be
 	// solved, held apart from a degraded fit (see latchedKinds).
 	Failed bool `json:"failed,omitempty"`
+	// At is the end of the last window the latch passed while the
+	// condition was held (0 in a checkpoint from before it was kept: no
+	// gap is seen), and Gap, s, a gap in the data of at least
+	// processor.gapAfter met since, before the condition was judged again.
+	At  float64 `json:"at,omitempty"`
+	Gap float64 `json:"gap,omitempty"`
 }
 
 func latchKey(kind, subject string) string { return kind + "/" + subject }
@@ -134,6 +142,15 @@ func (p *processor) latch(w *window, est *Estimate, alarms []Alarm) []Alarm {
 	if p.active == nil {
 		p.active = map[string]*latchedState{}
 	}
+	// A condition held before a gap in the data of gapAfter or more (no
+	// data from any sensor: what the asset's silent alarm tells) was not
+	// seen through the gap: when it holds after it, it is raised anew,
+	// and when it does not, its clearing gives the gap.
+	for _, st := range p.active {
+		if g := w.Start - st.At; st.At > 0 && p.gapAfter > 0 && g >= p.gapAfter && g > st.Gap {
+			st.Gap = g
+		}
+	}
 	seen := map[string]bool{}
 	out := alarms[:0:0]
 	for _, al := range alarms {
@@ -146,6 +163,13 @@ func (p *processor) latch(w *window, est *Estimate, alarms []Alarm) []Alarm {
 			continue
 		}
 		seen[k] = true
+		gap := 0.0
+		if st, ok := p.active[k]; ok && st.Gap > 0 {
+			gap = st.Gap
+			delete(p.active, k)
+			al.AfterGap = gap
+			al.Message += fmt.Sprintf("; it held before a gap of %.4g s in the data (alarmed since the window starting %s, %d window(s)) and holds again after it: raised anew", gap, unixString(st.Since), st.Windows)
+		}
 		if st, ok := p.active[k]; ok {
 			st.Windows++
 			st.Value = al.Value
@@ -165,7 +189,7 @@ func (p *processor) latch(w *window, est *Estimate, alarms []Alarm) []Alarm {
 			continue
 		}
 		p.active[k] = &latchedState{Kind: al.Kind, Subject: al.Subject, Window: w.Index, Since: w.Start, Windows: 1,
-			Peak: al.Value, Last: al.Value, Value: al.Value, Threshold: al.Threshold, Failed: al.fitFailed}
+			Peak: al.Value, Last: al.Value, Value: al.Value, Threshold: al.Threshold, Failed: al.fitFailed, At: w.End}
 		switch {
 		case al.Kind == AlarmDegraded && !al.fitFailed || al.Kind == AlarmInconsistent:
 			al.Message += "; raised once while the condition lasts (the estimates list it as ongoing), again if its misfit grows to 1.5 times the one alarmed (the reduced chi-square to 2.25 times), and, marked cleared, when it ends"
@@ -184,6 +208,7 @@ func (p *processor) latch(w *window, est *Estimate, alarms []Alarm) []Alarm {
 	sort.Strings(keys)
 	for _, k := range keys {
 		st := p.active[k]
+		st.At = w.End
 		if seen[k] {
 			if est != nil {
 				est.Ongoing = append(est.Ongoing, OngoingAlarm{Kind: st.Kind, Subject: st.Subject, Since: st.Since, Windows: st.Windows, Value: st.Value})
@@ -217,9 +242,13 @@ func (p *processor) latch(w *window, est *Estimate, alarms []Alarm) []Alarm {
 				vals = strings.Replace(vals, "largest value", "value furthest from the threshold", 1)
 			}
 		}
+		upTo := "up to this one"
+		if st.Gap > 0 {
+			upTo = fmt.Sprintf("up to a gap of %.4g s in the data before this one (it may have ended in the gap)", st.Gap)
+		}
 		al := p.alarm(w, st.Kind, st.Subject, now, st.Threshold,
-			fmt.Sprintf("%s has cleared: it held from the window starting %s for %d window(s), up to this one%s", what, unixString(st.Since), st.Windows, vals))
-		al.Cleared, al.Windows, al.Since, al.Peak, al.fitFailed = true, st.Windows, st.Since, st.Peak, st.Failed
+			fmt.Sprintf("%s has cleared: it held from the window starting %s for %d window(s), %s%s", what, unixString(st.Since), st.Windows, upTo, vals))
+		al.Cleared, al.Windows, al.Since, al.Peak, al.fitFailed, al.AfterGap = true, st.Windows, st.Since, st.Peak, st.Failed, st.Gap
 		out = append(out, al)
 	}
 	clear(p.level)

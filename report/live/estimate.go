@@ -207,6 +207,13 @@ type Alarm struct {
 	// is the start of the window of its onset.
 	Worsened bool    `json:"worsened,omitempty"`
 	Previous float64 `json:"previous,omitempty"`
+	// AfterGap, s, marks a condition's onset or clearing in the first
+	// window it was judged in after a gap in the data of at least the
+	// service's silent_after, while it was held: one that holds again
+	// after the gap is raised anew (the record of its earlier onset is in
+	// the message), one that does not is cleared, having perhaps ended in
+	// the gap.
+	AfterGap float64 `json:"after_gap_s,omitempty"`
 	// fitFailed marks the degraded alarm of a window that could not be
 	// solved (not encoded: its message and threshold 0 tell it).
 	fitFailed bool

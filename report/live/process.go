@@ -39,6 +39,10 @@ type processor struct {
 	// latch key, also when under their threshold (solve sets them, latch
 	// reads them for a Cleared alarm's Value and then empties them).
 	level map[string]float64
+	// gapAfter, s, is the gap in the data after which a held condition
+	// that holds again is raised anew (latch; the service's silent_after,
+	// 0: never).
+	gapAfter float64
 	// prevAt is the end of the window prev was taken from (0: not
 	// known), so that a step across a gap says so (currentAlarms).
 	prevAt float64

@@ -143,6 +143,7 @@ func (s *Service) newAssetWorker(a *AssetConfig) (*assetWorker, error) {
 	if err != nil {
 		return nil, err
 	}
+	proc.gapAfter = s.site.Service.SilentAfter.Seconds()
 	w := &assetWorker{svc: s, asset: a, log: s.log.With("asset", a.Name), sens: map[string]int{}, proc: proc}
 	for i, sn := range a.Sensors {
 		w.sens[sn.Name] = i
