@@ -12,8 +12,9 @@ import (
 // misfitEstimator is meanEstimator (the current is the mean vertical
 // reading, 1001 + 10 k A in window k of the harness data) reporting, by
 // that mean, a reduced chi-square of 100 in windows 1 to 3, 400 in
-// window 4 and 1 otherwise: a fit that misses the readings by 10 times
-// the noise, then by 20 times, then fits. It is the same with any sensor
+// window 4, 15 in window 5 and 1 otherwise: a fit that misses the
+// readings by 10 times the noise, then by 20 times, then by 3.9 times
+// (under max_chi2 25 but over 25/2.25, the deadband), then fits. It is the same with any sensor
 // left out (means within 5 A of the window's), so that no sensor is
 // isolated as inconsistent.
 type misfitEstimator struct{}
@@ -29,6 +30,8 @@ func (misfitEstimator) Solve(in *SolveInput) (*SolveOutput, error) {
 		red = 100
 	case k == 4:
 		red = 400
+	case k == 5:
+		red = 15
 	}
 	out.Chi2 = red * float64(out.DOF)
 	return out, nil
@@ -37,11 +40,12 @@ func (misfitEstimator) Solve(in *SolveInput) (*SolveOutput, error) {
 // Through the service, across a restart of serve: a degraded fit lasting
 // windows 1 to 4 is stored as one alarm at its onset, one marked
 // worsened in window 4 (its misfit doubled: the reduced chi-square from
-// 100 to 400, over 2.25 times) and one marked cleared in window 5, where
-// it had been an alarm in every window; the estimates list it as
-// ongoing, the restart (after window 2) neither raises it again nor
-// forgets it, and uc_alarms_total of the second run counts the worsening
-// only. Simulated truth: misfitEstimator's chi-squares.
+// 100 to 400, over 2.25 times) and one marked cleared in window 6, where
+// it had been an alarm in every window; window 5 (reduced chi-square 15,
+// quality good) is within the deadband and still lists it as ongoing;
+// the restart (after window 2) neither raises it again nor forgets it,
+// and uc_alarms_total of the second run counts the worsening only.
+// Simulated truth: misfitEstimator's chi-squares.
 func TestServiceDegradedFitAlarmedOnce(t *testing.T) {
 	if testing.Short() {
 		t.Skip("runs a broker and the service")
@@ -56,8 +60,8 @@ func TestServiceDegradedFitAlarmedOnce(t *testing.T) {
 		t.Fatal(err)
 	}
 	svc, stop := h.runConfig(t, Config{Site: site, Worker: "w2", NewEstimator: newMisfit}, "w2")
-	h.publish(1.5, 1.5) // windows 3..5
-	waitFor(t, 30*time.Second, "6 estimates", func() bool { return len(h.estimates()) >= 6 })
+	h.publish(1.5, 2) // windows 3..6
+	waitFor(t, 30*time.Second, "7 estimates", func() bool { return len(h.estimates()) >= 7 })
 	resp, err := http.Get("http://" + svc.HTTPAddr() + "/metrics")
 	if err != nil {
 		t.Fatal(err)
@@ -80,11 +84,11 @@ func TestServiceDegradedFitAlarmedOnce(t *testing.T) {
 		}
 		rows = append(rows, row)
 	}
-	if want := []string{"1 degraded r0", "4 degraded r0 worsened", "5 degraded r0 cleared"}; strings.Join(rows, ", ") != strings.Join(want, ", ") {
+	if want := []string{"1 degraded r0", "4 degraded r0 worsened", "6 degraded r0 cleared"}; strings.Join(rows, ", ") != strings.Join(want, ", ") {
 		t.Fatalf("degraded alarms %q, want %q", rows, want)
 	}
-	if as[1].Value != 400 || as[1].Previous != 100 || as[2].Value != 1 || as[2].Peak != 400 || as[2].Windows != 4 || as[2].Since != float64(k0+1)*0.5 {
-		t.Errorf("worsening %+v and clearing %+v: want 400 after 100; cleared at 1 after 4 windows, peak 400, since window 1", as[1], as[2])
+	if as[1].Value != 400 || as[1].Previous != 100 || as[2].Value != 1 || as[2].Peak != 400 || as[2].Windows != 5 || as[2].Since != float64(k0+1)*0.5 {
+		t.Errorf("worsening %+v and clearing %+v: want 400 after 100; cleared at 1 after 5 windows, peak 400, since window 1", as[1], as[2])
 	}
 	for _, e := range h.estimates() {
 		k := e.Window - k0
@@ -94,12 +98,15 @@ func TestServiceDegradedFitAlarmedOnce(t *testing.T) {
 				n = o.Windows
 			}
 		}
-		want := 0
-		if k >= 1 && k <= 4 {
+		want, quality := 0, "good"
+		if k >= 1 && k <= 5 {
 			want = int(k)
 		}
-		if n != want {
-			t.Errorf("window %d: ongoing degraded for %d windows, want %d", k, n, want)
+		if k >= 1 && k <= 4 {
+			quality = "degraded"
+		}
+		if n != want || e.Quality != quality {
+			t.Errorf("window %d: quality %s, ongoing degraded for %d windows; want %s, %d", k, e.Quality, n, quality, want)
 		}
 	}
 	if want := `uc_alarms_total{asset="fenwick-lane",kind="degraded"} 1`; !strings.Contains(string(body), want) {
