@@ -87,7 +87,9 @@ func judgedByFit(kind string) bool {
 // degraded gave 260 onsets and as many clearings; measured with
 // synthWindow's harrow-fen windows, 10 nT of noise stated as 2 nT). The
 // windows in the deadband list it in ongoing (their quality is not
-// "degraded").
+// "degraded"). An inconsistent sensor has a deadband of its own
+// (inconsistentDeadband): it is held in a window that keeps it, while the
+// sensor would still be blamed but for max_chi2.
 
 // needsLevel reports whether kind is cleared only by a window that
 // recorded its value (setLevel): a window that could not judge it (a
@@ -234,7 +236,7 @@ func (p *processor) latch(w *window, est *Estimate, alarms []Alarm) []Alarm {
 			if _, ok := p.level[k]; !ok && needsLevel(st.Kind) {
 				continue // not judged in this window
 			}
-			if v, ok := p.level[k]; ok && st.Kind == AlarmDegraded && v > st.Threshold/(WorsenFactor*WorsenFactor) {
+			if v, ok := p.level[k]; ok && (st.Kind == AlarmDegraded && v > st.Threshold/(WorsenFactor*WorsenFactor) || st.Kind == AlarmInconsistent) {
 				// Within the deadband: still held.
 				st.Windows++
 				st.Value = v

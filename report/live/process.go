@@ -589,6 +589,7 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 	}
 	if !math.IsNaN(jred) {
 		p.setLevel(AlarmDegraded, "", jred) // judged: a held degraded fit may clear
+		p.inconsistentDeadband(r, jred)
 	}
 	e.RMS, e.Chi2, e.DOF, e.Background = out.RMS, out.Chi2, out.DOF, out.Background
 	e.Quality = "good"
