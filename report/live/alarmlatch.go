@@ -77,19 +77,24 @@ func judgedByFit(kind string) bool {
 	return false
 }
 
-// A degraded fit, once raised, is cleared only when its misfit has
-// fallen WorsenFactor times under the largest max_chi2 allows (its reduced
-// chi-square under max_chi2 / WorsenFactor^2, 11.1 for the default 25):
-// a window's reduced chi-square scatters by sqrt(2/dof) of itself (a
-// third with 20 degrees of freedom), so a fit that misses the readings by
-// about max_chi2 crosses it back and forth, and without this deadband was
-// raised and cleared again every few windows (447 of 1000 windows
-// degraded gave 260 onsets and as many clearings; measured with
-// synthWindow's harrow-fen windows, 10 nT of noise stated as 2 nT). The
-// windows in the deadband list it in ongoing (their quality is not
+// clearAfter: a degraded fit, once raised, is cleared only when its
+// misfit has fallen WorsenFactor times under the largest max_chi2 allows
+// (its reduced chi-square under max_chi2 / WorsenFactor^2, 11.1 for the
+// default 25) in clearAfter windows in a row. A window's reduced
+// chi-square scatters by sqrt(2/dof) of itself (a third with 20 degrees
+// of freedom), so a fit that misses the readings by about max_chi2
+// crosses it back and forth: without the deadband it was raised and
+// cleared again every few windows (447 of 1000 windows degraded gave 260
+// onsets and as many clearings; measured with synthWindow's harrow-fen
+// windows, 10 nT of noise stated as 2 nT; with the deadband alone 19
+// onsets, with the three windows 1), and one that seldom crosses it was
+// raised and cleared at each crossing (48 of 1000 windows at 8 nT: 37
+// onsets and clearings with the deadband alone, 5 with the three
+// windows). The windows held so list it in ongoing (their quality is not
 // "degraded"). An inconsistent sensor has a deadband of its own
-// (inconsistentDeadband): it is held in a window that keeps it, while the
+// (inconsistentDeadband): it is held in a window that keeps it while the
 // sensor would still be blamed but for max_chi2.
+const clearAfter = 3
 
 // needsLevel reports whether kind is cleared only by a window that
 // recorded its value (setLevel): a window that could not judge it (a
@@ -131,6 +136,9 @@ type latchedState struct {
 	// processor.gapAfter met since, before the condition was judged again.
 	At  float64 `json:"at,omitempty"`
 	Gap float64 `json:"gap,omitempty"`
+	// Quiet counts the windows in a row, up to this one, in which a held
+	// degraded fit has been under its deadband (see clearAfter).
+	Quiet int `json:"quiet,omitempty"`
 }
 
 func latchKey(kind, subject string) string { return kind + "/" + subject }
@@ -187,6 +195,7 @@ func (p *processor) latch(w *window, est *Estimate, alarms []Alarm) []Alarm {
 		if st, ok := p.active[k]; ok {
 			st.Windows++
 			st.Value = al.Value
+			st.Quiet = 0
 			if worse(al.Kind, al.Value, st.Peak, st.Threshold) {
 				st.Peak = al.Value
 			}
@@ -236,14 +245,26 @@ func (p *processor) latch(w *window, est *Estimate, alarms []Alarm) []Alarm {
 			if _, ok := p.level[k]; !ok && needsLevel(st.Kind) {
 				continue // not judged in this window
 			}
-			if v, ok := p.level[k]; ok && (st.Kind == AlarmDegraded && v > st.Threshold/(WorsenFactor*WorsenFactor) || st.Kind == AlarmInconsistent) {
-				// Within the deadband: still held.
-				st.Windows++
-				st.Value = v
-				if est != nil {
-					est.Ongoing = append(est.Ongoing, OngoingAlarm{Kind: st.Kind, Subject: st.Subject, Since: st.Since, Windows: st.Windows, Value: st.Value})
+			if v, ok := p.level[k]; ok && (st.Kind == AlarmDegraded || st.Kind == AlarmInconsistent) {
+				// Within the deadband, or under it for fewer than
+				// clearAfter windows: still held.
+				hold := true
+				if st.Kind == AlarmDegraded {
+					if v > st.Threshold/(WorsenFactor*WorsenFactor) {
+						st.Quiet = 0
+					} else {
+						st.Quiet++
+						hold = st.Quiet < clearAfter
+					}
 				}
-				continue
+				if hold {
+					st.Windows++
+					st.Value = v
+					if est != nil {
+						est.Ongoing = append(est.Ongoing, OngoingAlarm{Kind: st.Kind, Subject: st.Subject, Since: st.Since, Windows: st.Windows, Value: st.Value})
+					}
+					continue
+				}
 			}
 		}
 		delete(p.active, k)
