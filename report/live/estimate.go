@@ -192,10 +192,14 @@ type Alarm struct {
 	Revision int `json:"revision,omitempty"`
 	// Cleared marks the record that a condition alarmed at its onset
 	// (see latchedKinds) no longer holds: its window is the first without
-	// it, Windows counts the windows it held in, Since is the start of the
-	// window it was raised in, Value is the window's own value (under
-	// Threshold; 0 for a sensor condition) and Peak the largest value
-	// while it held. Cleared records are not counted in uc_alarms_total.
+	// it (for a degraded fit the third in a row under its deadband, for an
+	// inconsistent sensor the first that does not blame it; see
+	// clearAfter), Windows counts the windows it held in, Since is the
+	// start of the window it was raised in, Value is the window's own
+	// value (under Threshold; 0 for a sensor condition and a failed
+	// window) and Peak the largest value while it held (for an
+	// implausible check the one furthest from Threshold). Cleared records
+	// are not counted in uc_alarms_total.
 	Cleared bool    `json:"cleared,omitempty"`
 	Windows int     `json:"windows,omitempty"`
 	Since   float64 `json:"since,omitempty"`
