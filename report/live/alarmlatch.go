@@ -4,37 +4,107 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"strings"
 )
 
 // latchedKinds are the alarm kinds that describe a condition lasting
 // from window to window (a conductor over its rating, a go and return
-// that do not cancel, a sensor silent, stuck or saturated). Each is
-// raised once, in the window where the condition begins for its subject;
-// while it holds, later windows raise nothing more for it but list it in
-// Estimate.Ongoing with the number of windows it has held, and the first
-// window where it no longer holds carries an alarm of the same kind and
-// subject marked Cleared, with that window's value (under the threshold)
-// and the largest value while it held as Peak. An over-current or
-// imbalance that grows while it holds is raised again, marked Worsened,
-// in the first window whose value reaches WorsenFactor times the value
-// last alarmed. So a condition lasting a day is two alarms, not one per
+// that do not cancel, a sensor silent, stuck, saturated or inconsistent
+// with the others, a fit that misses the readings or fails, readings
+// that do not look like nanotesla). Each is raised once, in the window
+// where the condition begins for its subject; while it holds, later
+// windows raise nothing more for it but list it in Estimate.Ongoing with
+// the number of windows it has held, and the first window where it no
+// longer holds carries an alarm of the same kind and subject marked
+// Cleared, with that window's value (under the threshold) and the
+// largest value while it held as Peak. A condition whose value measures
+// how bad it is (see worsened) is raised again, marked Worsened, in the
+// first window where it has grown by WorsenFactor over the value last
+// alarmed. So a condition lasting a day is two alarms, not one per
 // window, and cannot bury a new alarm in the listings, while one that
-// grows is alarmed again as it grows. Events
-// (step, data-lost) and the judgements of a window's fit (degraded,
-// implausible, inconsistent) are raised in every window they concern.
-var latchedKinds = map[string]bool{AlarmOverCurrent: true, AlarmImbalance: true, AlarmSilent: true, AlarmStuck: true, AlarmSaturated: true}
+// grows is alarmed again as it grows. A gap in the data of the service's
+// silent_after or more ends the hold: a condition that holds again after
+// it is raised anew (Alarm.AfterGap). Events (step, data-lost) are
+// raised in every window they concern.
+//
+// A degraded alarm of a window that could not be solved (quality
+// "failed") is a condition of its own, apart from a fit that misses the
+// readings (latchedState.Failed): a failed window can judge neither the
+// misfit nor the readings, so it leaves the fit's conditions (degraded,
+// implausible, inconsistent) and the currents' (over-current, imbalance)
+// as they were, and the first solved window clears the failures.
+var latchedKinds = map[string]bool{AlarmOverCurrent: true, AlarmImbalance: true, AlarmSilent: true, AlarmStuck: true, AlarmSaturated: true,
+	AlarmDegraded: true, AlarmImplausible: true, AlarmInconsistent: true}
 
-// WorsenFactor is how much a held over-current or imbalance must grow,
-// over the value last alarmed for it, to be raised again (Alarm.Worsened):
-// a leak of 20 A is alarmed again at 30 A, then at 45 A, and so on.
+// WorsenFactor is how much a held condition must grow, over the value
+// last alarmed for it, to be raised again (Alarm.Worsened): a leak of
+// 20 A is alarmed again at 30 A, then at 45 A, and so on; a degraded fit
+// or an inconsistent sensor when its misfit (the square root of the
+// reduced chi-square: how many times the noise the readings are missed
+// by) has grown by it, that is when the reduced chi-square reaches
+// WorsenFactor^2 = 2.25 times the one last alarmed.
 const WorsenFactor = 1.5
 
-// worsens reports whether the kind's value measures how bad the
-// condition is (a sensor's stuck or clipped reading does not).
-func worsens(kind string) bool { return kind == AlarmOverCurrent || kind == AlarmImbalance }
+// worsened reports whether a held condition's value v has grown enough
+// over last, the value last alarmed, to be raised again. Over-current
+// and imbalance are currents, compared as they are; degraded and
+// inconsistent are reduced chi-squares, compared by their square roots.
+// The other kinds do not worsen: a sensor's stuck or clipped reading, a
+// silence, a failed fit and an implausible check (the Earth's field out
+// of range or a chi-square far below its degrees of freedom: readings in
+// the wrong unit, which do not grow) carry no measure of how bad.
+func worsened(kind string, failed bool, v, last float64) bool {
+	if last == 0 || failed {
+		return false
+	}
+	switch kind {
+	case AlarmOverCurrent, AlarmImbalance:
+		return math.Abs(v) >= WorsenFactor*math.Abs(last)
+	case AlarmDegraded, AlarmInconsistent:
+		return v >= WorsenFactor*WorsenFactor*last
+	}
+	return false
+}
+
+// judgedByFit reports whether kind is a judgement that only a solved
+// window makes (its currents or its fit): a failed window leaves it as it
+// was.
+func judgedByFit(kind string) bool {
+	switch kind {
+	case AlarmOverCurrent, AlarmImbalance, AlarmDegraded, AlarmImplausible, AlarmInconsistent:
+		return true
+	}
+	return false
+}
+
+// clearAfter: a degraded fit, once raised, is cleared only when its
+// misfit has fallen WorsenFactor times under the largest max_chi2 allows
+// (its reduced chi-square under max_chi2 / WorsenFactor^2, 11.1 for the
+// default 25) in clearAfter windows in a row. A window's reduced
+// chi-square scatters by sqrt(2/dof) of itself (a third with 20 degrees
+// of freedom), so a fit that misses the readings by about max_chi2
+// crosses it back and forth: without the deadband it was raised and
+// cleared again every few windows (447 of 1000 windows degraded gave 260
+// onsets and as many clearings; measured with synthWindow's harrow-fen
+// windows, 10 nT of noise stated as 2 nT; with the deadband alone 19
+// onsets, with the three windows 1), and one that seldom crosses it was
+// raised and cleared at each crossing (48 of 1000 windows at 8 nT: 37
+// onsets and clearings with the deadband alone, 5 with the three
+// windows). The windows held so list it in ongoing (their quality is not
+// "degraded"). An inconsistent sensor has a deadband of its own
+// (inconsistentDeadband): it is held in a window that keeps it while the
+// sensor would still be blamed but for max_chi2.
+const clearAfter = 3
+
+// needsLevel reports whether kind is cleared only by a window that
+// recorded its value (setLevel): a window that could not judge it (a
+// reduced chi-square not known, an Earth's field not seen) leaves it as
+// it was.
+func needsLevel(kind string) bool { return kind == AlarmDegraded || kind == AlarmImplausible }
 
 // setLevel records the window's value of a latched kind for subject,
-// also when under its threshold (for the Cleared alarm's Value).
+// also when under its threshold (for the Cleared alarm's Value), and so
+// that it was judged in the window (needsLevel).
 func (p *processor) setLevel(kind, subject string, v float64) {
 	if p.level == nil {
 		p.level = map[string]float64{}
@@ -57,19 +127,51 @@ type latchedState struct {
 	Last      float64 `json:"last,omitempty"`
 	Value     float64 `json:"value,omitempty"`
 	Threshold float64 `json:"threshold,omitempty"`
+	// Failed marks the degraded condition of windows that could not be
+	// solved, held apart from a degraded fit (see latchedKinds).
+	Failed bool `json:"failed,omitempty"`
+	// At is the end of the last window the latch passed while the
+	// condition was held (0 in a checkpoint from before it was kept: no
+	// gap is seen), and Gap, s, a gap in the data of at least
+	// processor.gapAfter met since, before the condition was judged again.
+	At  float64 `json:"at,omitempty"`
+	Gap float64 `json:"gap,omitempty"`
+	// Quiet counts the windows in a row, up to this one, in which a held
+	// degraded fit has been under its deadband (see clearAfter).
+	Quiet int `json:"quiet,omitempty"`
 }
 
 func latchKey(kind, subject string) string { return kind + "/" + subject }
+
+// latchKeyOf is the latch key of al: its kind and subject, and for the
+// degraded alarm of a failed window, a key of its own.
+func latchKeyOf(al Alarm) string {
+	if al.fitFailed {
+		return latchKey(al.Kind, al.Subject) + "/failed"
+	}
+	return latchKey(al.Kind, al.Subject)
+}
 
 // latch passes the window's alarms through the latched conditions: an
 // alarm of a latched kind whose condition already holds is dropped (and
 // counted) unless it has worsened (then it is kept, marked Worsened), one
 // that begins is kept, and a condition that no longer holds gets a
 // Cleared alarm. est.Ongoing is set. A condition that a window
-// cannot judge (its currents, in a failed window) is left as it was.
+// cannot judge (the currents and the fit's judgements, in a failed
+// window; a degraded fit or an implausible check whose value the window
+// did not give) is left as it was.
 func (p *processor) latch(w *window, est *Estimate, alarms []Alarm) []Alarm {
 	if p.active == nil {
 		p.active = map[string]*latchedState{}
+	}
+	// A condition held before a gap in the data of gapAfter or more (no
+	// data from any sensor: what the asset's silent alarm tells) was not
+	// seen through the gap: when it holds after it, it is raised anew,
+	// and when it does not, its clearing gives the gap.
+	for _, st := range p.active {
+		if g := w.Start - st.At; st.At > 0 && p.gapAfter > 0 && g >= p.gapAfter && g > st.Gap {
+			st.Gap = g
+		}
 	}
 	seen := map[string]bool{}
 	out := alarms[:0:0]
@@ -78,22 +180,30 @@ func (p *processor) latch(w *window, est *Estimate, alarms []Alarm) []Alarm {
 			out = append(out, al)
 			continue
 		}
-		k := latchKey(al.Kind, al.Subject)
+		k := latchKeyOf(al)
 		if seen[k] {
 			continue
 		}
 		seen[k] = true
+		gap := 0.0
+		if st, ok := p.active[k]; ok && st.Gap > 0 {
+			gap = st.Gap
+			delete(p.active, k)
+			al.AfterGap = gap
+			al.Message += fmt.Sprintf("; it held before a gap of %.4g s in the data (alarmed since the window starting %s, %d window(s)) and holds again after it: raised anew", gap, unixString(st.Since), st.Windows)
+		}
 		if st, ok := p.active[k]; ok {
 			st.Windows++
 			st.Value = al.Value
-			if math.Abs(al.Value) > math.Abs(st.Peak) {
+			st.Quiet = 0
+			if worse(al.Kind, al.Value, st.Peak, st.Threshold) {
 				st.Peak = al.Value
 			}
 			last := st.Last
 			if last == 0 {
 				last = st.Peak // a checkpoint from before Last was kept
 			}
-			if worsens(al.Kind) && last != 0 && math.Abs(al.Value) >= WorsenFactor*math.Abs(last) {
+			if worsened(al.Kind, st.Failed, al.Value, last) {
 				al.Message += fmt.Sprintf("; raised again: it has grown from %.4g, alarmed last, to %.4g since it began in the window starting %s", last, al.Value, unixString(st.Since))
 				al.Worsened, al.Previous, al.Since = true, last, st.Since
 				st.Last = al.Value
@@ -102,11 +212,18 @@ func (p *processor) latch(w *window, est *Estimate, alarms []Alarm) []Alarm {
 			continue
 		}
 		p.active[k] = &latchedState{Kind: al.Kind, Subject: al.Subject, Window: w.Index, Since: w.Start, Windows: 1,
-			Peak: al.Value, Last: al.Value, Value: al.Value, Threshold: al.Threshold}
-		al.Message += "; raised once while the condition lasts (the estimates list it as ongoing), again if it grows to 1.5 times the value alarmed, and, marked cleared, when it ends"
+			Peak: al.Value, Last: al.Value, Value: al.Value, Threshold: al.Threshold, Failed: al.fitFailed, At: w.End}
+		switch {
+		case al.Kind == AlarmDegraded && !al.fitFailed || al.Kind == AlarmInconsistent:
+			al.Message += "; raised once while the condition lasts (the estimates list it as ongoing), again if its misfit grows to 1.5 times the one alarmed (the reduced chi-square to 2.25 times), and, marked cleared, when it ends"
+		case al.Kind == AlarmOverCurrent || al.Kind == AlarmImbalance:
+			al.Message += "; raised once while the condition lasts (the estimates list it as ongoing), again if it grows to 1.5 times the value alarmed, and, marked cleared, when it ends"
+		default:
+			al.Message += "; raised once while the condition lasts (the estimates list it as ongoing) and, marked cleared, when it ends"
+		}
 		out = append(out, al)
 	}
-	currents := est == nil || est.Quality != "failed"
+	solved := est == nil || est.Quality != "failed"
 	keys := make([]string, 0, len(p.active))
 	for k := range p.active {
 		keys = append(keys, k)
@@ -114,19 +231,49 @@ func (p *processor) latch(w *window, est *Estimate, alarms []Alarm) []Alarm {
 	sort.Strings(keys)
 	for _, k := range keys {
 		st := p.active[k]
+		st.At = w.End
 		if seen[k] {
 			if est != nil {
 				est.Ongoing = append(est.Ongoing, OngoingAlarm{Kind: st.Kind, Subject: st.Subject, Since: st.Since, Windows: st.Windows, Value: st.Value})
 			}
 			continue
 		}
-		if !currents && (st.Kind == AlarmOverCurrent || st.Kind == AlarmImbalance) {
-			continue // not judged in a window without currents
+		if !st.Failed {
+			if !solved && judgedByFit(st.Kind) {
+				continue // not judged in a window without currents or fit
+			}
+			if _, ok := p.level[k]; !ok && needsLevel(st.Kind) {
+				continue // not judged in this window
+			}
+			if v, ok := p.level[k]; ok && (st.Kind == AlarmDegraded || st.Kind == AlarmInconsistent) {
+				// Within the deadband, or under it for fewer than
+				// clearAfter windows: still held.
+				hold := true
+				if st.Kind == AlarmDegraded {
+					if v > st.Threshold/(WorsenFactor*WorsenFactor) {
+						st.Quiet = 0
+					} else {
+						st.Quiet++
+						hold = st.Quiet < clearAfter
+					}
+				}
+				if hold {
+					st.Windows++
+					st.Value = v
+					if est != nil {
+						est.Ongoing = append(est.Ongoing, OngoingAlarm{Kind: st.Kind, Subject: st.Subject, Since: st.Since, Windows: st.Windows, Value: st.Value})
+					}
+					continue
+				}
+			}
 		}
 		delete(p.active, k)
 		what := "the " + st.Kind + " condition"
 		if st.Subject != "" {
 			what += " of " + st.Subject
+		}
+		if st.Failed {
+			what = "the failed windows (no estimate, alarmed degraded)"
 		}
 		now := p.level[k] // this window's value; 0 for a sensor condition
 		vals := ""
@@ -135,14 +282,32 @@ func (p *processor) latch(w *window, est *Estimate, alarms []Alarm) []Alarm {
 		}
 		if st.Peak != 0 {
 			vals += fmt.Sprintf("; largest value %.4g", st.Peak)
+			if st.Kind == AlarmImplausible {
+				vals = strings.Replace(vals, "largest value", "value furthest from the threshold", 1)
+			}
+		}
+		upTo := "up to this one"
+		if st.Gap > 0 {
+			upTo = fmt.Sprintf("up to a gap of %.4g s in the data before this one (it may have ended in the gap)", st.Gap)
 		}
 		al := p.alarm(w, st.Kind, st.Subject, now, st.Threshold,
-			fmt.Sprintf("%s has cleared: it held from the window starting %s for %d window(s), up to this one%s", what, unixString(st.Since), st.Windows, vals))
-		al.Cleared, al.Windows, al.Since, al.Peak = true, st.Windows, st.Since, st.Peak
+			fmt.Sprintf("%s has cleared: it held from the window starting %s for %d window(s), %s%s", what, unixString(st.Since), st.Windows, upTo, vals))
+		al.Cleared, al.Windows, al.Since, al.Peak, al.fitFailed, al.AfterGap = true, st.Windows, st.Since, st.Peak, st.Failed, st.Gap
 		out = append(out, al)
 	}
 	clear(p.level)
 	return out
+}
+
+// worse reports whether v is a worse value of a held condition of kind
+// than peak, the worst so far: for an implausible check the one further
+// from the threshold (a field far below the range, a chi-square nearer 0),
+// for the others the one of larger magnitude.
+func worse(kind string, v, peak, threshold float64) bool {
+	if kind == AlarmImplausible {
+		return math.Abs(v-threshold) > math.Abs(peak-threshold)
+	}
+	return math.Abs(v) > math.Abs(peak)
 }
 
 // alarmID is the message id of alarm al of the window whose id is id.
@@ -150,6 +315,9 @@ func alarmID(id string, al Alarm) string {
 	s := id + "/" + al.Kind + "/" + al.Subject
 	if al.Cleared {
 		s += "/cleared"
+		if al.fitFailed {
+			s += "/failed" // a failure and a degraded fit may clear together
+		}
 	}
 	return s
 }

@@ -212,8 +212,13 @@
 // look like nanotesla: the Earth's field outside earth_field, subject
 // "earth-field", or with noise given a chi-square far below its degrees
 // of freedom, subject "chi2"; the estimate's quality is then
-// "implausible"). Each is published on
+// "implausible"), inconsistent (a sensor the others contradict, left
+// out). Each is published on
 // uc.alarm.<asset>.<kind> with message id "<asset>/<window>/<kind>/<subject>".
+// All but step, data-lost and commissioning are conditions: raised once
+// at their onset, again when worse by WorsenFactor (over-current,
+// imbalance, degraded, inconsistent), and marked cleared when they end
+// (alarmlatch.go).
 //
 // # Queries
 //

@@ -192,19 +192,35 @@ type Alarm struct {
 	Revision int `json:"revision,omitempty"`
 	// Cleared marks the record that a condition alarmed at its onset
 	// (see latchedKinds) no longer holds: its window is the first without
-	// it, Windows counts the windows it held in, Since is the start of the
-	// window it was raised in, Value is the window's own value (under
-	// Threshold; 0 for a sensor condition) and Peak the largest value
-	// while it held. Cleared records are not counted in uc_alarms_total.
+	// it (for a degraded fit the third in a row under its deadband, for an
+	// inconsistent sensor the first that does not blame it; see
+	// clearAfter), Windows counts the windows it held in, Since is the
+	// start of the window it was raised in, Value is the window's own
+	// value (under Threshold; 0 for a sensor condition and a failed
+	// window) and Peak the largest value while it held (for an
+	// implausible check the one furthest from Threshold). Cleared records
+	// are not counted in uc_alarms_total.
 	Cleared bool    `json:"cleared,omitempty"`
 	Windows int     `json:"windows,omitempty"`
 	Since   float64 `json:"since,omitempty"`
 	Peak    float64 `json:"peak,omitempty"`
-	// Worsened marks an over-current or imbalance raised again while it
-	// holds because its value reached WorsenFactor times the value last
-	// alarmed (Previous); Since is the start of the window of its onset.
+	// Worsened marks an over-current, imbalance, degraded fit or
+	// inconsistent sensor raised again while it holds because it grew by
+	// WorsenFactor over the value last alarmed (Previous: a current, or a
+	// reduced chi-square, grown by WorsenFactor in its square root); Since
+	// is the start of the window of its onset.
 	Worsened bool    `json:"worsened,omitempty"`
 	Previous float64 `json:"previous,omitempty"`
+	// AfterGap, s, marks a condition's onset or clearing in the first
+	// window it was judged in after a gap in the data of at least the
+	// service's silent_after, while it was held: one that holds again
+	// after the gap is raised anew (the record of its earlier onset is in
+	// the message), one that does not is cleared, having perhaps ended in
+	// the gap.
+	AfterGap float64 `json:"after_gap_s,omitempty"`
+	// fitFailed marks the degraded alarm of a window that could not be
+	// solved (not encoded: its message and threshold 0 tell it).
+	fitFailed bool
 }
 
 // OngoingAlarm is a condition raised in an earlier window that still
@@ -216,8 +232,10 @@ type OngoingAlarm struct {
 	Since float64 `json:"since"`
 	// Windows counts the windows it has held in, this one included.
 	Windows int `json:"windows"`
-	// Value is this window's value (over-current, imbalance, and a
-	// stuck or saturated sensor's reading; 0 for a silent sensor).
+	// Value is this window's value (over-current, imbalance, a stuck or
+	// saturated sensor's reading, a degraded fit's or an inconsistent
+	// sensor's reduced chi-square, an implausible check's value; 0 for a
+	// silent sensor and a failed window).
 	Value float64 `json:"value"`
 }
 

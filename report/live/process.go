@@ -39,6 +39,10 @@ type processor struct {
 	// latch key, also when under their threshold (solve sets them, latch
 	// reads them for a Cleared alarm's Value and then empties them).
 	level map[string]float64
+	// gapAfter, s, is the gap in the data after which a held condition
+	// that holds again is raised anew (latch; the service's silent_after,
+	// 0: never).
+	gapAfter float64
 	// prevAt is the end of the window prev was taken from (0: not
 	// known), so that a step across a gap says so (currentAlarms).
 	prevAt float64
@@ -563,25 +567,29 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 		// A sensor the others contradict (knocked round, moved, its
 		// offset changed) is left out, named, and the window solved with
 		// the rest.
-		if sub, bad, why := p.isolate(r); sub != nil {
+		if sub, bad, why, reds := p.isolate(r); sub != nil {
 			if o2, err2 := p.est.Solve(&sub.in); err2 == nil && len(o2.Current) == len(p.names) && nonFiniteOutput(o2) == "" {
 				frozen := r.frozen
 				r, out = sub, o2
 				for k, name := range bad {
 					if frozen[name] {
 						r.missing[name] = "frozen (one reading repeated on every axis through the window), inconsistent with the other sensors' readings: " + why[k]
-						alarms = append(alarms, p.alarm(w, AlarmInconsistent, name, 0, a.Alarms.MaxChi2,
+						alarms = append(alarms, p.alarm(w, AlarmInconsistent, name, reds[k], a.Alarms.MaxChi2,
 							fmt.Sprintf("sensor %s repeated one reading on every axis through the window (frozen: a hung logger or a stuck output; it is called stuck if it repeats it through the next window too), and that reading is inconsistent with the other sensors': %s; the window is solved without it. Check the sensor's logger and output", name, why[k])))
 						continue
 					}
 					r.missing[name] = "inconsistent with the other sensors' readings (knocked, moved, or its offset changed?): " + why[k]
-					alarms = append(alarms, p.alarm(w, AlarmInconsistent, name, 0, a.Alarms.MaxChi2,
+					alarms = append(alarms, p.alarm(w, AlarmInconsistent, name, reds[k], a.Alarms.MaxChi2,
 						fmt.Sprintf("sensor %s's reading is inconsistent with the other sensors': %s; the window is solved without it. Check the sensor (turned or moved on its mount, offset drift)", name, why[k])))
 				}
 				e.Missing, e.Sensors, e.Samples = r.missing, len(r.used), r.samples
 				jred = judge(r, out)
 			}
 		}
+	}
+	if !math.IsNaN(jred) {
+		p.setLevel(AlarmDegraded, "", jred) // judged: a held degraded fit may clear
+		p.inconsistentDeadband(r, jred)
 	}
 	e.RMS, e.Chi2, e.DOF, e.Background = out.RMS, out.Chi2, out.DOF, out.Background
 	e.Quality = "good"
@@ -743,7 +751,9 @@ func (p *processor) failed(w *window, e *Estimate, alarms []Alarm, msg string) (
 	e.RMS, e.Chi2, e.DOF, e.Background, e.SigmaScale, e.Implausible = 0, 0, 0, nil, 0, nil
 	e.Chi2Geometry, e.Change = 0, nil
 	out := append([]Alarm(nil), alarms...)
-	return e, append(out, p.alarm(w, AlarmDegraded, "", 0, 0, msg))
+	al := p.alarm(w, AlarmDegraded, "", 0, 0, msg)
+	al.fitFailed = true
+	return e, append(out, al)
 }
 
 // nonFiniteOutput names the first non-finite number of an estimator's
@@ -871,6 +881,9 @@ func (p *processor) implausible(w *window, r *reduced, out *SolveOutput) []Alarm
 			sort.Float64s(v)
 			level, what = v[len(v)/2], "the sensors' median mean total field"
 		}
+		if !math.IsNaN(level) {
+			p.setLevel(AlarmImplausible, checkEarthField, level)
+		}
 		if !math.IsNaN(level) && (level < a.fieldLo || level > a.fieldHi) {
 			th := a.fieldLo
 			if level > a.fieldHi {
@@ -880,6 +893,9 @@ func (p *processor) implausible(w *window, r *reduced, out *SolveOutput) []Alarm
 				fmt.Sprintf("the Earth's field seen by the sensors (%s) is %.4g nT, outside earth_field %g to %g nT: fields in the wrong unit (sent as nT)? set earth_field = [0, 0] for sensors without the static field",
 					what, level, a.fieldLo, a.fieldHi)))
 		}
+	}
+	if a.Noise > 0 && out.DOF > 0 {
+		p.setLevel(AlarmImplausible, checkChi2, out.Chi2/float64(out.DOF))
 	}
 	if a.Noise > 0 && out.DOF > 0 && chi2Implausible(out.Chi2, out.DOF) {
 		red := out.Chi2 / float64(out.DOF)

@@ -143,6 +143,7 @@ func (s *Service) newAssetWorker(a *AssetConfig) (*assetWorker, error) {
 	if err != nil {
 		return nil, err
 	}
+	proc.gapAfter = s.site.Service.SilentAfter.Seconds()
 	w := &assetWorker{svc: s, asset: a, log: s.log.With("asset", a.Name), sens: map[string]int{}, proc: proc}
 	for i, sn := range a.Sensors {
 		w.sens[sn.Name] = i
@@ -1103,6 +1104,9 @@ func (w *assetWorker) publishWindow(win *window, r *reduced) error {
 	}
 	t1 := time.Now()
 	est, alarms := w.proc.solve(win, r)
+	// Every implausible window is counted and its start logged, also
+	// while its alarm is held (latch drops the alarm after the onset).
+	raw := alarms
 	alarms = w.proc.latch(win, est, alarms)
 	if w.ck.DataLost != "" && win.End > w.ck.DataLostAt {
 		est.DataLost = w.ck.DataLost
@@ -1127,7 +1131,7 @@ func (w *assetWorker) publishWindow(win *window, r *reduced) error {
 	if est.Quality == "failed" {
 		met.estimates.WithLabelValues(w.asset.Name, "failed").Inc()
 	}
-	w.noteImplausible(win, alarms)
+	w.noteImplausible(win, raw)
 	if err := w.placeEarlySilence(win); err != nil {
 		return err
 	}
