@@ -63,6 +63,15 @@ type Window struct {
 // DemodSettings controls Demodulate. A nil *DemodSettings or a zero field
 // takes the default.
 type DemodSettings struct {
+	// LeftOut holds the times of the samples that follow rows the caller
+	// left out of the log (readings clipped at the sensor's range, say):
+	// a break of the time column just before one is counted in
+	// DemodLoss.LeftOut, not as a pause, and the warning of windows lost
+	// says they are where LeftOutWhy says ("readings clipped at the
+	// magnetometer's range were left out") and gives LeftOutFix instead
+	// of advice on the time stamps, which are not at fault.
+	LeftOut                []float64
+	LeftOutWhy, LeftOutFix string
 	// Freq is the signal frequency, Hz. Zero estimates it from the log
 	// (spectral peak above MinFreq, refined by a four-parameter fit).
 	Freq float64
@@ -210,6 +219,9 @@ type DemodLoss struct {
 	// Repeats counts times equal to the one before, Backwards times
 	// before it, NotANumber times that are NaN.
 	Repeats, Backwards, NotANumber int
+	// LeftOut counts steps over MaxStepIntervals before a sample that
+	// follows rows the caller left out (DemodSettings.LeftOut).
+	LeftOut int
 }
 
 // add counts l's losses into o (the group's name is o's).
@@ -222,6 +234,7 @@ func (o *DemodLoss) add(l DemodLoss) {
 	o.Repeats += l.Repeats
 	o.Backwards += l.Backwards
 	o.NotANumber += l.NotANumber
+	o.LeftOut += l.LeftOut
 }
 
 // MaxStepIntervals is the longest time step, in sample intervals, that a
@@ -307,6 +320,8 @@ type Columns struct {
 	B     [3][]float64
 	Pos   [3][]float64
 	Group []string
+	// leftOut holds DemodSettings.LeftOut's times (breakAt).
+	leftOut map[float64]bool
 }
 
 func (c *Columns) check() error {
@@ -426,6 +441,14 @@ func DemodulateColumns(c *Columns, set *DemodSettings) (*DemodResult, error) {
 		return nil, err
 	}
 	c, quantum := retimeColumns(c)
+	if len(ds.LeftOut) > 0 {
+		cc := *c
+		cc.leftOut = make(map[float64]bool, len(ds.LeftOut))
+		for _, t := range ds.LeftOut {
+			cc.leftOut[t] = true
+		}
+		c = &cc
+	}
 	if ds.Freq < 0 || math.IsNaN(ds.Freq) || math.IsInf(ds.Freq, 0) {
 		return nil, fmt.Errorf("calibrate: demodulate: frequency %g Hz is not positive", ds.Freq)
 	}
@@ -620,7 +643,7 @@ func DemodulateColumns(c *Columns, set *DemodSettings) (*DemodResult, error) {
 		}
 		return nil, e
 	}
-	if w := lossWarning(res.Losses, c.Group != nil, quantum); w != "" {
+	if w := lossWarning(res.Losses, c.Group != nil, quantum, &ds); w != "" {
 		res.Warnings = append(res.Warnings, w)
 	}
 	return res, nil
@@ -642,6 +665,8 @@ func (c *Columns) breakAt(i int, maxStep float64, l *DemodLoss) (groupChange boo
 		l.Repeats++
 	case step < 0:
 		l.Backwards++
+	case step > maxStep && c.leftOut[b]:
+		l.LeftOut++
 	case step > maxStep:
 		l.Pauses++
 		l.LongestPause = math.Max(l.LongestPause, step)
@@ -711,7 +736,7 @@ func (c *Columns) losses(runs []run, got []int, N, hop int, maxStep float64) []D
 // group when grouped; "" when none was lost. With stamps that look
 // quantised (q non-nil and not uniform), repeated times are no repeated
 // rows, and the advice is to write the times with more digits.
-func lossWarning(ls []DemodLoss, grouped bool, q *ingest.TimeQuantum) string {
+func lossWarning(ls []DemodLoss, grouped bool, q *ingest.TimeQuantum, ds *DemodSettings) string {
 	if len(ls) == 0 {
 		return ""
 	}
@@ -726,8 +751,33 @@ func lossWarning(ls []DemodLoss, grouped bool, q *ingest.TimeQuantum) string {
 		}
 		per = append(per, fmt.Sprintf("%s %d/%d (%s)", name, l.Windows, l.Expected, l.short()))
 	}
+	leftOut := ""
+	if all.LeftOut > 0 {
+		leftOut = fmt.Sprintf("%d gaps are where %s", all.LeftOut, ds.LeftOutWhy)
+		if all.LeftOut == 1 {
+			leftOut = "1 gap is where " + ds.LeftOutWhy
+		}
+	}
+	if all.LeftOut > 0 && all.reasons() == "" {
+		// Every break is a gap the caller made: the time stamps are not
+		// at fault (before, an AC log whose clipped readings were left
+		// out was told to fix its logger's time stamps: found in review).
+		gaps := fmt.Sprintf("all %d gaps are where %s", all.LeftOut, ds.LeftOutWhy)
+		if all.LeftOut == 1 {
+			gaps = "the one gap is where " + ds.LeftOutWhy
+		}
+		what := fmt.Sprintf("%d of %d AC windows lost to gaps in the readings (%.1f%%; %d samples in no window): %s",
+			all.Windows, all.Expected, 100*float64(all.Windows)/float64(all.Expected), all.Samples, gaps)
+		if grouped {
+			what += fmt.Sprintf("; windows lost/expected per group: %s", strings.Join(per, ", "))
+		}
+		return what + ". A window never spans a gap longer than one missing sample, so the samples between two gaps closer than a window are left out and the fit rests on fewer windows; the time stamps are not at fault: " + ds.LeftOutFix + ", or demodulate in shorter windows"
+	}
 	what := fmt.Sprintf("%d of %d AC windows lost to breaks in the time column (%.1f%%; %d samples in no window): the time column %s",
 		all.Windows, all.Expected, 100*float64(all.Windows)/float64(all.Expected), all.Samples, all.reasons())
+	if leftOut != "" {
+		what += "; " + leftOut + ", not the time stamps' fault"
+	}
 	if grouped {
 		what += fmt.Sprintf("; windows lost/expected per group: %s", strings.Join(per, ", "))
 	}
@@ -753,6 +803,7 @@ func (l *DemodLoss) short() string {
 	add(l.Backwards, "step back", "steps back")
 	add(l.Pauses, "pause", "pauses")
 	add(l.NotANumber, "NaN time", "NaN times")
+	add(l.LeftOut, "gap left out", "gaps left out")
 	return strings.Join(parts, ", ")
 }
 

@@ -179,3 +179,53 @@ func TestDemodulateCountsWindowsLost(t *testing.T) {
 		t.Errorf("err = %v, want a NoWindowError naming 41 repeated times and runs of 98 samples (a repeat, 96 rows and the next to be repeated)", err)
 	}
 }
+
+// TestDemodulateLeftOutGapsNamed: gaps the caller made by leaving rows out
+// (DemodSettings.LeftOut, as locate leaves out readings clipped at the
+// sensor's range) are counted apart from the logger's pauses and worded
+// with the caller's cause, not as a fault of the time stamps. A 50 Hz
+// log of 4000 samples at 2000 Hz in two groups (windows of 0.3 s, 600
+// samples, counted by hand as in TestDemodulateCountsWindowsLost): T1
+// loses rows 801-803 (left out by the caller), T2 rows 2501-2503 (a
+// logger's pause).
+func TestDemodulateLeftOutGapsNamed(t *testing.T) {
+	c := acLog(nil, 2000, 4000, 100, 50, testPhasors, 0)
+	c.Group = make([]string, len(c.Time))
+	for i := range c.Group {
+		c.Group[i] = map[bool]string{true: "T1", false: "T2"}[i < 2000]
+	}
+	leftOut := []float64{c.Time[804]}
+	both := columnsWithout(c, func(i int) bool { return i >= 801 && i <= 803 || i >= 2501 && i <= 2503 })
+	set := DemodSettings{Freq: 50, Window: 0.3, LeftOut: leftOut, LeftOutWhy: "rows were left out as clipped", LeftOutFix: "read with a larger range"}
+	res, err := DemodulateColumns(both, &set)
+	if err != nil {
+		t.Fatal(err)
+	}
+	// T1: runs of 801 and 1196 rows give 1 + 1 of the 3 windows 1997
+	// would give; T2 runs of 501 and 1496 give 0 + 2.
+	if len(res.Losses) != 2 || res.Losses[0].LeftOut != 1 || res.Losses[0].Pauses != 0 || res.Losses[1].LeftOut != 0 || res.Losses[1].Pauses != 1 {
+		t.Fatalf("losses %+v; want T1 to lose a window to one gap left out, T2 to one pause", res.Losses)
+	}
+	w := res.Warnings[len(res.Warnings)-1]
+	if !strings.Contains(w, "pauses once") || !strings.Contains(w, "1 gap is where rows were left out as clipped, not the time stamps' fault") || !strings.Contains(w, "T1 1/3 (1 gap left out)") {
+		t.Errorf("mixed breaks: warning %q", w)
+	}
+	// The left-out gap alone: the time stamps are not blamed.
+	only := columnsWithout(c, func(i int) bool { return i >= 801 && i <= 803 })
+	res, err = DemodulateColumns(only, &set)
+	if err != nil {
+		t.Fatal(err)
+	}
+	w = res.Warnings[len(res.Warnings)-1]
+	if !strings.Contains(w, "1 of 3 AC windows lost to gaps in the readings") || !strings.Contains(w, "the one gap is where rows were left out as clipped") || strings.Contains(w, "fix the logger's time stamps") || !strings.Contains(w, "read with a larger range") {
+		t.Errorf("left-out gap alone: warning %q", w)
+	}
+	// Without LeftOut the same gap is a pause, as before.
+	res, err = DemodulateColumns(only, &DemodSettings{Freq: 50, Window: 0.3})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if w := res.Warnings[len(res.Warnings)-1]; !strings.Contains(w, "pauses once") || !strings.Contains(w, "fix the logger's time stamps") {
+		t.Errorf("no LeftOut: warning %q", w)
+	}
+}

@@ -161,6 +161,12 @@ type BuildSettings struct {
 	// yardstick, taken from the lower quartile of the groups' fits, takes
 	// as the norm once over three quarters of them share it.
 	MeasuredNoise float64
+	// KeptRails names readings held at one value on an axis, as at a
+	// magnetometer's range, that were kept in the fits because they could
+	// not be told from the trace's own extreme (cmd/undercurrent
+	// clipped.go), such as "bz -45800 nT on 480 of 1200 readings of
+	// cut.csv"; "" when none. sharedMisfit names them first as the cause.
+	KeptRails string
 	// ProfileMax is the most readings per group kept for the report's
 	// plots; 0 means 240, negative keeps none.
 	ProfileMax int
@@ -507,6 +513,14 @@ func sharedMisfit(fits []Fit, bs *BuildSettings, rs *route.Settings) string {
 	lead := fmt.Sprintf("%d of %d groups' fits%s miss the readings by %.3g nT RMS per component (median)", bad, n, which, m)
 	if n == 1 {
 		lead = fmt.Sprintf("the group's fit misses the readings by %.3g nT RMS per component", m)
+	}
+	if bs.KeptRails != "" {
+		// Readings held at a value that may be the sensor's range were
+		// kept: before, a strong line railed on 43% of the log missed by
+		// 1000 times the noise and this warning named close conductors,
+		// not the rails the run had already suspected (found in review).
+		return fmt.Sprintf("%s, %.3g times the %.3g nT noise the readings themselves show and %.2g%% of the signal: the fitted lines do not describe this field. Readings held at one value were kept in the fits (%s; see the warning on them): if that value is the magnetometer's range they are not the field and are the likeliest cause, so give it with --range-nt to leave them out and locate again; only then suspect conductors closer together than the fit can part or an object. Positions, depths and currents may be wrong although the fits, measured against one another, may pass as sound",
+			lead, m/nm, nm, 100*median(frac), bs.KeptRails)
 	}
 	if sc, pm := jitterExplains(misses); pm > 0 {
 		return fmt.Sprintf("%s, %.3g times the %.3g nT noise the readings themselves show and %.2g%% of the signal: the positions scatter from reading to reading by %.2g m, which alone makes about %.3g nT of misfit, most on the anomaly's flanks: scattered positions (satellite positioning jitter) are the likely cause, rather than conductors closer together than the fit can part; they flatten and widen the fitted anomaly, so depths read deep and currents high although the fits, measured against one another, may pass as sound; smooth the track or use corrected positions",

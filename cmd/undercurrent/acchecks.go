@@ -382,6 +382,9 @@ type demodPlan struct {
 	// mains warnings (clash, foldClash) when it is an estimate (those of
 	// its sigma, freqDecimals); 0 for a frequency given, shown as given.
 	dec int
+	// leftOut holds the times of the readings that follow rows left out
+	// as clipped (demodulateACLeftOut); nil for none.
+	leftOut []float64
 }
 
 // signalHz shows the signal's frequency freq as pl's warnings do: as
@@ -408,6 +411,9 @@ func (pl demodPlan) signalHz(freq float64) string {
 // cycles the term costs about 0.3% of the phasors' sigma.
 func (pl demodPlan) settings(freq, win float64, h []int) *calibrate.DemodSettings {
 	set := &calibrate.DemodSettings{Freq: freq, Window: win, Harmonics: h, Drift: true}
+	if len(pl.leftOut) > 0 {
+		set.LeftOut, set.LeftOutWhy, set.LeftOutFix = pl.leftOut, clippedGapWhy, clippedGapFix
+	}
 	if pl.fs > 0 && len(pl.mains) > 0 {
 		set.Nuisance = calibrate.MainsNuisance(freq, win, pl.fs, pl.mains, h)
 	}
@@ -912,8 +918,16 @@ func logRate(s *ingest.Samples) float64 {
 // used, the warnings to report (without the log's name) and the offsets of
 // the groups whose own frequency differs (wanderHints).
 func demodulateAC(o *locateOptions, s *ingest.Samples) (*calibrate.DemodResult, float64, []string, freqHints, error) {
+	return demodulateACLeftOut(o, s, nil)
+}
+
+// demodulateACLeftOut is demodulateAC for a log some of whose rows were
+// left out as clipped at the sensor's range (clipped.go): leftOut holds
+// the times of the rows that follow them, whose gaps the warning of
+// windows lost names as such (calibrate.DemodSettings.LeftOut).
+func demodulateACLeftOut(o *locateOptions, s *ingest.Samples, leftOut []float64) (*calibrate.DemodResult, float64, []string, freqHints, error) {
 	win := o.window
-	pl := demodPlan{mains: o.mains, fs: logRate(s)}
+	pl := demodPlan{mains: o.mains, fs: logRate(s), leftOut: leftOut}
 	var lengthened string
 	if win == 0 {
 		win = defaultWindow(o.freq)

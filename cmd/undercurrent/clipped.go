@@ -33,10 +33,12 @@ import (
 // waveform's peaks, cycle after cycle. A rail is at the sensor's range,
 // which its three axes share, so it is also about the largest |reading|
 // of any axis (clipShareRange), on an axis whose trace varies over many
-// resolution steps (clipMinSteps), and holds not more than a quarter of
-// the log (clipMaxShare): a quiet axis logged to a whole nanotesla repeats
-// its extreme too. They are left out of the fits, with a warning naming
-// them first.
+// resolution steps (clipMinSteps). Beyond a quarter of the log
+// (clipMaxShare), where a quiet background logged to a coarse resolution
+// can hold an axis's extreme as often, the readings are left out only
+// where the trace is cut there: the readings beside each run at the value
+// lie clipCutSteps resolution steps or more inside it (railCut). They are
+// left out of the fits, with a warning naming them first.
 
 // clipNextRatio is how many times the readings at the next distinct value
 // inside a candidate rail its own readings must be.
@@ -58,10 +60,26 @@ const clipShareRange = 0.95
 const clipMinSteps = 10
 
 // clipMaxShare is the largest share of a log's readings the exact-repeat
-// test leaves out on its own: a rail holds the readings where the field
-// is strongest, over the conductor, not most of a log. Past it the
-// readings are kept and a warning says so; --range-nt leaves them out.
+// test leaves out on its own. Past it a rail must also be cut
+// (clipCutSteps), else the readings are kept and a warning says so;
+// --range-nt leaves them out. Before, every rail past it was kept: a
+// 500 A line 1.3 m under a sensor of ±65000 nT range, whose bz the Earth's
+// field already holds at -45000 nT, railed 43% of 10 m traverses, and
+// the fits, kept on them, read 401 ± 10 A "sound" with a phantom second
+// line; at 3000 A 98% of the log railed and the fits missed by 18600 nT
+// with no warning of the misfit (found in review).
 const clipMaxShare = 0.25
+
+// clipCutSteps: a rail cuts a trace that would run on past it, so the
+// readings entering and leaving a run at the rail lie anywhere between it
+// and one reading's change inside it, on the median about half that
+// change (a 500 A line's field crossing a ±65000 nT rail changes by
+// hundreds of nT from one reading to the next). A trace reaching its own
+// extreme, a smooth peak or a flat background the anomaly leaves,
+// flattens there and is entered one resolution step at a time. A rail
+// crossed by a few steps per reading (a coarse resolution, a slow
+// crossing) is not told from those and is kept past clipMaxShare.
+const clipCutSteps = 3
 
 // clippedRows finds the readings of log s (its field columns as read,
 // before any correction) pinned at an axis's extreme, and returns which
@@ -180,6 +198,7 @@ func clippedRows(path string, s *ingest.Samples, rng, noise float64) ([]bool, st
 	type rail struct {
 		c    calibrate.ClipRun
 		step float64
+		jump float64 // railCut, past clipMaxShare
 	}
 	var rails []rail
 	for _, c := range calibrate.FindClipped(rd) {
@@ -215,7 +234,7 @@ func clippedRows(path string, s *ingest.Samples, rng, noise float64) ([]bool, st
 		if span < clipMinSteps*step {
 			continue // a few resolution steps: no trace to be cut
 		}
-		rails = append(rails, rail{c, step})
+		rails = append(rails, rail{c: c, step: step})
 	}
 	if len(rails) == 0 {
 		return result("")
@@ -233,22 +252,94 @@ func clippedRows(path string, s *ingest.Samples, rng, noise float64) ([]bool, st
 			}
 		}
 	}
-	if float64(out) > clipMaxShare*float64(n) {
+	note := ""
+	many := float64(out) > clipMaxShare*float64(n)
+	if many {
+		// Over a quarter of the log: only rails that cut the trace.
+		var cut, kept []rail
 		var seen []string
 		for _, r := range rails {
+			if r.jump = railCut(cols[r.c.Axis], s.Group, r.c.Value, r.step); r.jump >= clipCutSteps {
+				cut = append(cut, r)
+				continue
+			}
+			kept = append(kept, r)
 			seen = append(seen, fmt.Sprintf("b%c reads exactly %.6g nT, its %s value, on %d readings", "xyz"[r.c.Axis], r.c.Value, extremeWord(r.c.Max), r.c.N))
 		}
-		r := rails[0]
-		note := fmt.Sprintf("%s: %s, as a magnetometer held at its range would, but that is %d of %d readings: a rail holds the readings where the field is strongest, over the conductor, not so much of a log, and readings logged to a coarse resolution (here %.3g nT steps on b%c) can repeat an axis's extreme as often; they are kept in the fits. If %.6g nT is the sensor's range, give --range-nt %.6g to leave them out",
-			path, strings.Join(seen, "; "), out, n, r.step, "xyz"[r.c.Axis], math.Abs(r.c.Value), math.Abs(r.c.Value))
-		return result(note)
+		if len(kept) > 0 {
+			// The rows the kept rails hold, beyond those left out already.
+			held := 0
+			for i := range n {
+				if keep != nil && !keep[i] {
+					continue
+				}
+				for _, r := range kept {
+					if cols[r.c.Axis][i] == r.c.Value {
+						held++
+						break
+					}
+				}
+			}
+			r := kept[0]
+			note = fmt.Sprintf("%s: %s"+keptRailsSep+"%d of %d readings; but the readings beside them lie a median %.3g of its resolution steps (%.3g nT on b%c) from that value, as where a trace reaches its own extreme (a smooth peak, or a quiet background logged to a coarse resolution) rather than where a rail cuts it, so they are kept in the fits. If %.6g nT is the sensor's range, they are not the field and every fit on them is wrong: give --range-nt %.6g to leave them out",
+				path, strings.Join(seen, "; "), held, n, r.jump, r.step, "xyz"[r.c.Axis], math.Abs(r.c.Value), math.Abs(r.c.Value))
+		}
+		rails = cut
 	}
 	for _, r := range rails {
 		c := r.c
 		count, groups := drop(cols[c.Axis], func(v float64) bool { return v == c.Value })
-		parts = append(parts, fmt.Sprintf("b%c reads exactly %.6g nT, its %s value, on %d readings%s", "xyz"[c.Axis], c.Value, extremeWord(c.Max), count, groups))
+		cutWords := ""
+		if many {
+			cutWords = fmt.Sprintf(", entered and left with jumps of a median %.3g nT (%.3g of its resolution steps) as a trace cut at a rail is", r.jump*r.step, r.jump)
+		}
+		parts = append(parts, fmt.Sprintf("b%c reads exactly %.6g nT, its %s value, on %d readings%s%s", "xyz"[c.Axis], c.Value, extremeWord(c.Max), count, groups, cutWords))
 	}
-	return result("")
+	return result(note)
+}
+
+// keptRailsSep ends the rails' names in clippedRows's note on rails kept
+// in the fits: the text before it names them for the shared-misfit
+// warning (keptRails).
+const keptRailsSep = ", as a magnetometer held at its range would, on "
+
+// keptRails returns the rails a clippedRows note names, with the log's
+// path ("cut.csv: bz reads exactly -45800 nT, its smallest value, on 480
+// readings"); "" for no note.
+func keptRails(note string) string {
+	if i := strings.Index(note, keptRailsSep); i >= 0 {
+		return note[:i]
+	}
+	return ""
+}
+
+// railCut returns the median distance, in resolution steps of step nT,
+// from v of the readings of col beside each run of readings at v: the
+// reading before the run and the one after it, in the log's order and in
+// the run's group (group nil: one group). 0 when no run has a neighbour.
+func railCut(col []float64, group []string, v, step float64) float64 {
+	same := func(i, j int) bool { return group == nil || group[i] == group[j] }
+	var d []float64
+	for i := range col {
+		if col[i] != v {
+			continue
+		}
+		if i > 0 && col[i-1] != v && same(i, i-1) {
+			d = append(d, math.Abs(col[i-1]-v)/step)
+		}
+		if i+1 < len(col) && col[i+1] != v && same(i, i+1) {
+			d = append(d, math.Abs(col[i+1]-v)/step)
+		}
+	}
+	if len(d) == 0 {
+		return 0
+	}
+	sort.Float64s(d)
+	if m := len(d) / 2; len(d)%2 == 0 {
+		return (d[m-1] + d[m]) / 2
+	} else {
+		return d[m]
+	}
 }
 
 // extremeWord names an axis's extreme for the warnings.
@@ -289,3 +380,25 @@ func clippedWarning(path string, parts []string, left, n int) string {
 // record's (basefield.go), which blamed the sensor's axes and calibration
 // for the cut (found in review).
 const clippedACBase = "; the readings left no longer average to the steady field, so its direction and size are not compared with the base record's for this log"
+
+// clippedGapTimes returns the times of the readings of s kept (keep) right
+// after rows left out: an AC log's demodulation takes the gaps before them
+// for the readings clipped, not for pauses of the logger's clock
+// (calibrate.DemodSettings.LeftOut).
+func clippedGapTimes(s *ingest.Samples, keep []bool) []float64 {
+	var t []float64
+	for i := 1; i < len(keep) && i < len(s.Time); i++ {
+		if keep[i] && !keep[i-1] {
+			t = append(t, s.Time[i])
+		}
+	}
+	return t
+}
+
+// clippedGapWhy and clippedGapFix word the AC windows lost to the gaps
+// that clipped readings left out make (calibrate.DemodSettings): before,
+// such a log was told to fix its logger's time stamps (found in review).
+const (
+	clippedGapWhy = "readings clipped at the magnetometer's range were left out (see the warning on them), where the field is strongest, over the conductor: the windows lost are those nearest it, which weigh most in the fits"
+	clippedGapFix = "a magnetometer with a larger range, or held higher, reads the field there whole"
+)

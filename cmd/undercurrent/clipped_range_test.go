@@ -179,11 +179,13 @@ func TestClippedRowsRailAtTheRange(t *testing.T) {
 	}
 }
 
-// TestClippedRowsKeptPastAQuarter: a rail holds the readings over the
-// conductor, not most of a log. The line's field of
-// TestClippedRowsRailAtTheRange cut at -46000 nT on bz holds 40% of the
-// readings at the cut: they are kept, with a note naming --range-nt, and
-// left out when the range is given.
+// TestClippedRowsKeptPastAQuarter: the line's field of
+// TestClippedRowsRailAtTheRange cut at -45800 nT on bz holds 40% of the
+// readings at the cut, and the readings beside the cut lie 2 nT (two
+// resolution steps) from it: past a quarter of the log, a cut that
+// shallow is not told from a trace's own extreme logged to a whole
+// nanotesla (railCut), so the readings are kept, with a note naming
+// --range-nt, and left out when the range is given.
 func TestClippedRowsKeptPastAQuarter(t *testing.T) {
 	var s ingest.Samples
 	for i := range 1200 {

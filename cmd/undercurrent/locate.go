@@ -546,6 +546,13 @@ type survey struct {
 	// alerts are warnings that the answer may be wrong (a route fitted
 	// as one line, spikes left in); they come first.
 	alerts []string
+	// keptRails names, per log, readings held at one value like a rail
+	// that were kept in the fits (clipped.go keptRails), for the
+	// shared-misfit warning.
+	keptRails []string
+	// clipGaps holds, by an AC log's source, the times of the readings
+	// that follow rows left out as clipped (clippedGapTimes).
+	clipGaps map[string][]float64
 	// baseCheck holds what the comparison with the base record's field
 	// needs once the groups are fitted (basefield.go).
 	baseCheck *baseCheck
@@ -793,8 +800,19 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			}
 			if note != "" {
 				sv.alerts = append(sv.alerts, note)
+				if r := keptRails(note); r != "" {
+					sv.keptRails = append(sv.keptRails, r)
+				}
 			}
 			if keep != nil {
+				if sv.ac {
+					// The rows that follow those left out, whose gaps
+					// the demodulation names as such (clipped.go).
+					if sv.clipGaps == nil {
+						sv.clipGaps = map[string][]float64{}
+					}
+					sv.clipGaps[s.Source] = clippedGapTimes(s, keep)
+				}
 				keepSampleRows(s, keep)
 				if sv.ac {
 					// An AC waveform cut at its peaks has lost its mean.
@@ -1698,7 +1716,7 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 		// Stamps scattered about a steady clock (jitterphase.go).
 		stampJitter(o, sv, s)
 	}
-	res, _, warns, hints, err := demodulateAC(o, s) // acchecks.go
+	res, _, warns, hints, err := demodulateACLeftOut(o, s, sv.clipGaps[s.Source]) // acchecks.go
 	if err != nil {
 		return noWindowAdvice(err, o)
 	}
@@ -2062,6 +2080,7 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 			// yardstick for a misfit every group shares when --noise
 			// is not given.
 			MeasuredNoise: medianOf(sv.windowSigma) + dcMeasuredNoise(sv),
+			KeptRails:     strings.Join(sv.keptRails, "; "),
 			Progress:      o.buildProgress,
 		})
 	})
