@@ -637,7 +637,7 @@ func runLocate(ctx context.Context, o *locateOptions, logs []string, progress io
 func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey, err error) {
 	doc := &report.Document{
 		SchemaVersion: report.SchemaVersion,
-		Tool:          report.Tool{Name: "undercurrent", Version: toolVersion()},
+		Tool:          report.Tool{Name: "undercurrent", Version: toolVersion(), Build: buildText()},
 		Created:       time.Now().UTC().Format(time.RFC3339),
 		Frame:         report.Frame{Kind: report.FrameLocalENU},
 		Settings:      o.given,
