@@ -159,3 +159,54 @@ func TestLocateACShuffledWithinTraverses(t *testing.T) {
 		}
 	}
 }
+
+// TestLocateOneLogRewalkRowOrder: a traverse walked again in one log
+// (rewalkOneLog: testdata/scenarios/single-line.toml, its T04 walked again
+// 20 minutes later with the current 10% higher, simulated truth) with its
+// traverses in the reverse order (each in time order, --time-order
+// per-group) and with its rows shuffled (--time-order any). The walks are
+// parted at pauses between a group's readings, taken in the order given,
+// and the route's direction followed the groups' first rows. Every order
+// must give the ordered log's groups (the walk again, T04 (walk 2),
+// among them), chainages and currents exactly.
+func TestLocateOneLogRewalkRowOrder(t *testing.T) {
+	dir := t.TempDir()
+	args := rewalkOneLog(t, dir)
+	log := args[len(args)-1]
+	s, err := ingest.ReadSamples(log)
+	if err != nil {
+		t.Fatal(err)
+	}
+	reversed := writeSplitLog(t, dir, "reversed.csv", reorderedCopy(s, traversesReversed(s)))
+	shuffled := writeSplitLog(t, dir, "shuffled.csv", reorderedCopy(s, rand.New(rand.NewPCG(4, 20)).Perm(s.Len())))
+	type station struct {
+		chainage, current float64
+	}
+	run := func(order, path string) map[string]station {
+		a := append(append([]string{"locate", "--json", "--group-by", "group", "--count", "1", "--time-order", order}, args[:len(args)-1]...), path)
+		doc := decodeDoc(t, mustCLI(t, a...))
+		got := map[string]station{}
+		for _, g := range doc.Groups {
+			if g.Chainage == nil || len(g.Sources) == 0 {
+				t.Fatalf("%s: group %s has no chainage or no source", path, g.Key)
+			}
+			got[g.Key] = station{*g.Chainage, g.Sources[0].Current}
+		}
+		return got
+	}
+	want := run("ordered", log)
+	if _, ok := want["T04 (walk 2)"]; !ok {
+		t.Fatalf("the ordered log has no group T04 (walk 2): %v", want)
+	}
+	for _, c := range []struct{ name, order, path string }{{"traverses reversed", "per-group", reversed}, {"rows shuffled", "any", shuffled}} {
+		got := run(c.order, c.path)
+		if len(got) != len(want) {
+			t.Errorf("%s: %d groups, the ordered log %d: %v", c.name, len(got), len(want), got)
+		}
+		for k, st := range want {
+			if g, ok := got[k]; !ok || g != st {
+				t.Errorf("%s: %s at chainage %.3f m with %.6f A (found %v); the ordered log gives %.3f m, %.6f A", c.name, k, g.chainage, g.current, ok, st.chainage, st.current)
+			}
+		}
+	}
+}
