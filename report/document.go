@@ -89,10 +89,17 @@ const SigmaNote = "Every fitted sigma (current_sigma_a, depth_sigma_m, phase_sig
 	"station_scatter_depth_m, the robust scatter between neighbouring stations, are a more realistic measure " +
 	"of the spread of a single station's current and depth."
 
-// Tool names the program and its version.
+// Tool names the program, its version and how it was built.
 type Tool struct {
 	Name    string `json:"name"`
 	Version string `json:"version"`
+	// Build is how the program was built, where that can change the
+	// numbers: the Go release, the target system and architecture with
+	// its instruction-set level (GOAMD64 and the like), and the build
+	// tags (such as noasm, which swaps the assembly kernels of the linear
+	// algebra for Go code that sums in another order). Empty when not
+	// known.
+	Build string `json:"build,omitempty"`
 }
 
 // Input is one file read.

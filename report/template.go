@@ -223,7 +223,7 @@ footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rul
 {{end}}</ul>{{end}}
 </section>
 
-<footer>Made by {{or .D.Tool.Name "undercurrent"}} {{.D.Tool.Version}} · result document schema {{.D.SchemaVersion}}. Positions in metres, fields in nanotesla, currents in amperes{{if eq .D.Signal.Mode "ac"}} (RMS){{end}}.</footer>
+<footer>Made by {{or .D.Tool.Name "undercurrent"}} {{.D.Tool.Version}}{{with .D.Tool.Build}} ({{.}}){{end}} · result document schema {{.D.SchemaVersion}}. Positions in metres, fields in nanotesla, currents in amperes{{if eq .D.Signal.Mode "ac"}} (RMS){{end}}.</footer>
 </body>
 </html>
 `

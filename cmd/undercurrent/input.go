@@ -291,6 +291,14 @@ func sortByTime(s *ingest.Samples) (back int, orig []int) {
 		return 0, orig
 	}
 	sort.SliceStable(orig, func(a, b int) bool { return s.Time[orig[a]] < s.Time[orig[b]] })
+	permuteRows(s, orig)
+	return back, orig
+}
+
+// permuteRows puts the rows of s in the order orig (the original row
+// index of each row in its new place).
+func permuteRows(s *ingest.Samples, orig []int) {
+	n := len(orig)
 	perm := func(v []float64) []float64 {
 		if v == nil {
 			return nil
@@ -311,7 +319,59 @@ func sortByTime(s *ingest.Samples) (back int, orig []int) {
 		}
 		s.Group = g
 	}
-	return back, orig
+}
+
+// sortGroupRows puts the rows of a survey log s in time order within each
+// group (of its group column; the whole log without one) when time goes
+// back within one, as --time-order any lets it: each group's rows
+// together, the groups in the order of their first rows, and rows at the
+// same time in the log's order. It returns how many rows step back in time
+// from the row before of their group (0: nothing moved). AC demodulation
+// takes a group's rows in the order given, from its sample rate on: a log
+// shuffled within its traverses was refused as sampled at 0.163 Hz (its
+// rate measured from steps between rows in file order) although it was
+// logged at 500 Hz, and the pauses that part the walks of a traverse and
+// the DC noise estimates read the order given too (found in review).
+func sortGroupRows(s *ingest.Samples) int {
+	n := s.Len()
+	if s.NoTime || n < 2 {
+		return 0
+	}
+	key := func(i int) string {
+		if s.Group == nil {
+			return ""
+		}
+		return s.Group[i]
+	}
+	last := map[string]float64{}
+	rank := map[string]int{}
+	back := 0
+	for i := range n {
+		k := key(i)
+		if t, ok := last[k]; ok && s.Time[i] < t {
+			back++
+		}
+		if _, ok := rank[k]; !ok {
+			rank[k] = len(rank)
+		}
+		last[k] = s.Time[i]
+	}
+	if back == 0 {
+		return 0
+	}
+	orig := make([]int, n)
+	for i := range orig {
+		orig[i] = i
+	}
+	sort.SliceStable(orig, func(a, b int) bool {
+		ra, rb := rank[key(orig[a])], rank[key(orig[b])]
+		if ra != rb {
+			return ra < rb
+		}
+		return s.Time[orig[a]] < s.Time[orig[b]]
+	})
+	permuteRows(s, orig)
+	return back
 }
 
 // fieldUnitGiven reports whether --unit named the unit of a field column,

@@ -644,7 +644,7 @@ func runLocate(ctx context.Context, o *locateOptions, logs []string, progress io
 func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey, err error) {
 	doc := &report.Document{
 		SchemaVersion: report.SchemaVersion,
-		Tool:          report.Tool{Name: "undercurrent", Version: toolVersion()},
+		Tool:          report.Tool{Name: "undercurrent", Version: toolVersion(), Build: buildText()},
 		Created:       time.Now().UTC().Format(time.RFC3339),
 		Frame:         report.Frame{Kind: report.FrameLocalENU},
 		Settings:      o.given,
@@ -791,6 +791,16 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		}
 		if o.groupBy != "" && s.Group == nil {
 			return nil, fmt.Errorf("%s has no column %q to group by (see \"undercurrent inspect %s\" for its columns)", path, o.groupBy, path)
+		}
+		// Rows out of time order within a group (--time-order any) are
+		// put in order (input.go sortGroupRows).
+		if back := sortGroupRows(s); back > 0 {
+			what := "within a group at " + plural(back, "row")
+			done := "each group's rows were put in time order, kept together"
+			if s.Group == nil {
+				what, done = "at "+plural(back, "row"), "the rows were put in time order"
+			}
+			sv.warnings = append(sv.warnings, fmt.Sprintf("%s: time goes backwards %s (--time-order %s): %s, as the AC demodulation, the pauses between walks and the noise estimates take the readings in order", path, what, o.read.timeOrder, done))
 		}
 		if !o.coil.on() {
 			// Readings pinned at the sensor's range (clipped.go).
@@ -1027,8 +1037,8 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			}
 		}
 	}
-	// Several logs: the groups in time order, not the order of the files
-	// given (loggroups.go).
+	// The groups in time order, not the order of the files given or of
+	// the rows in a log (loggroups.go).
 	if w := orderGroupsByTime(sv, logs); w != "" {
 		sv.warnings = append(sv.warnings, w)
 	}

@@ -514,28 +514,44 @@ func rangeText(lo, hi float64, unit string) string {
 	return f(lo) + "-" + f(hi) + " " + unit
 }
 
-// orderGroupsByTime puts the groups of a run of several logs in the order
-// of their first readings' times (ties by name), whatever the order the
-// logs were given in: the route's chain is turned to follow the groups'
-// order, so the order of the files on the command line set chainage 0,
-// the route's direction and the sign of every DC current (the same survey
-// in three files gave a fall at chainage 249 m in one order and 150 m in
-// another; found in review). A single log keeps its own order. Times that
-// are not calendar times (seconds from a logger's start, which restart at
-// 0 in each file, or none) do not order logs: then the order given is
-// kept, and the returned warning says so. The warning names no group: the
-// route is turned to agree with the order given as a whole, so chainage 0
-// need not be at the first log's first group (it named one in the middle
-// of the route; found in review); routeStartNote adds the group the built
-// route starts at.
+// orderGroupsByTime puts the groups of a run in the order of their first
+// readings' times (AC: windows), whatever the order the logs were given
+// in or the order of the rows in a log: the route's chain is turned to
+// follow the groups' order, so the order of the files on the command line
+// set chainage 0, the route's direction and the sign of every DC current
+// (the same survey in three files gave a fall at chainage 249 m in one
+// order and 150 m in another; found in review). Several logs' groups are
+// taken in time order when every group's first time is a calendar time,
+// ties by name. Times that are not calendar times (seconds from a
+// logger's start, which restart at 0 in each file, or none) do not order
+// logs: then the order given is kept, and the returned warning says so.
+// The warning names no group: the route is turned to agree with the order
+// given as a whole, so chainage 0 need not be at the first log's first
+// group (it named one in the middle of the route; found in review);
+// routeStartNote adds the group the built route starts at.
+//
+// A single log's groups are taken in time order too when every group has
+// a time (one log has one clock, calendar or not), ties in the log's
+// order: before, they kept the order of their first rows, and the same
+// rows with the traverses in another order (a database export, two daily
+// files joined, read with --time-order per-group or any) gave a route
+// starting at the other end with every DC current negated, while the same
+// rows as two logs did not (found in review). A log already in time order
+// keeps its order. A single log without times keeps its own order; one
+// whose times are not calendar times, and whose groups were moved, is
+// warned of (its clock may restart: two logs joined).
 func orderGroupsByTime(sv *survey, logs []string) string {
-	if len(logs) < 2 || len(sv.groups) < 2 {
+	if len(sv.groups) < 2 {
 		return ""
 	}
 	first := make(map[*group]float64, len(sv.groups))
 	for _, g := range sv.groups {
 		t := g.firstTime()
-		if !calendarTime(t) {
+		if len(logs) < 2 {
+			if math.IsNaN(t) {
+				return "" // no times: the log's own order
+			}
+		} else if !calendarTime(t) {
 			what := "has no times"
 			if !math.IsNaN(t) {
 				what = fmt.Sprintf("has times that are not calendar times (group %s starts at %s)", groupName(g.key), fmtBaseTime(t))
@@ -545,13 +561,26 @@ func orderGroupsByTime(sv *survey, logs []string) string {
 		}
 		first[g] = t
 	}
+	was := append([]*group(nil), sv.groups...)
 	sort.SliceStable(sv.groups, func(a, b int) bool {
 		ga, gb := sv.groups[a], sv.groups[b]
 		if first[ga] != first[gb] {
 			return first[ga] < first[gb]
 		}
-		return ga.key < gb.key
+		return len(logs) > 1 && ga.key < gb.key
 	})
+	if len(logs) > 1 {
+		return ""
+	}
+	// One log whose times are not calendar times, its groups not in time
+	// order in it: its clock may restart (files of a logger counting from
+	// its start, joined), and time order then mixes them up.
+	for i, g := range sv.groups {
+		if g != was[i] && !calendarTime(first[g]) {
+			return fmt.Sprintf("%s: the groups are not in time order in the log (group %s starts at %s, before group %s, which comes before it in the log), and were put in time order, which decides which end of the route is chainage 0 and the route's direction (and the sign of a DC current)%s; the times are not calendar times: if the log joins logs whose clocks each start at 0, give them as separate logs, in the order walked",
+				g.from, groupName(g.key), fmtBaseTime(first[g]), groupName(was[i].key), routeStartMark)
+		}
+	}
 	return ""
 }
 

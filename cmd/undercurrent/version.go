@@ -4,7 +4,9 @@ import (
 	"context"
 	"fmt"
 	"io"
+	"runtime"
 	"runtime/debug"
+	"strings"
 
 	"github.com/spf13/pflag"
 )
@@ -13,10 +15,15 @@ func init() {
 	register(&command{
 		name:    "version",
 		usage:   "",
-		summary: "print the version of undercurrent and of Go it was built with",
+		summary: "print the version of undercurrent and how it was built",
 		long: `Version prints the version of undercurrent (a module version, or
-"(devel)" for a build from a source tree) and the Go release it was built
-with; "undercurrent --version" does the same.
+"(devel)" for a build from a source tree) and how it was built: the Go
+release, the system and architecture (with its instruction-set level, such
+as GOAMD64=v1) and any build tags (such as noasm). The same build is
+recorded in results.json (tool.build): builds for other architectures or
+with other tags can differ in the last digits of a result, or at times
+land a fit of several lines in another minimum. "undercurrent --version"
+does the same.
 
 Examples:
   undercurrent version
@@ -25,15 +32,52 @@ Examples:
 			if len(args) != 0 {
 				return usageErrorf("version takes no arguments")
 			}
-			v, goVersion := "(devel)", "unknown"
-			if bi, ok := debug.ReadBuildInfo(); ok {
-				goVersion = bi.GoVersion
-				if bi.Main.Version != "" {
-					v = bi.Main.Version
-				}
-			}
-			fmt.Fprintf(stdout, "undercurrent %s (%s)\n", v, goVersion)
+			fmt.Fprintf(stdout, "undercurrent %s (%s)\n", toolVersion(), buildText())
 			return nil
 		},
 	})
+}
+
+// buildText is how the running program was built (buildOf).
+func buildText() string {
+	bi, _ := debug.ReadBuildInfo()
+	return buildOf(bi, runtime.Version(), runtime.GOOS, runtime.GOARCH)
+}
+
+// buildOf words the build of bi where it can change the numbers: the Go
+// release, the system and architecture with its instruction-set level
+// (GOAMD64=v3 lets the compiler fuse multiplies and adds) and the build
+// tags (noasm swaps gonum's assembly kernels for Go loops that sum in
+// another order). Two builds of one source whose results differed (a
+// three-line fit landing in another minimum under noasm) both printed
+// "undercurrent (devel) (go1.26.8)" and wrote the same tool version into
+// results.json, so nothing told the runs apart (found in review). goVer,
+// goos and goarch stand in for what bi lacks (the running program's own,
+// runtime.Version and the like).
+func buildOf(bi *debug.BuildInfo, goVer, goos, goarch string) string {
+	set := map[string]string{}
+	if bi != nil {
+		if bi.GoVersion != "" {
+			goVer = bi.GoVersion
+		}
+		for _, s := range bi.Settings {
+			set[s.Key] = s.Value
+		}
+	}
+	if v := set["GOOS"]; v != "" {
+		goos = v
+	}
+	if v := set["GOARCH"]; v != "" {
+		goarch = v
+	}
+	parts := []string{goVer, goos + "/" + goarch}
+	// The architecture's level: GOAMD64, GOARM64, GOARM, GO386 and the
+	// like, named after the architecture.
+	if lv := "GO" + strings.ToUpper(goarch); set[lv] != "" {
+		parts = append(parts, lv+"="+set[lv])
+	}
+	if tags := set["-tags"]; tags != "" {
+		parts = append(parts, "tags "+tags)
+	}
+	return strings.Join(parts, ", ")
 }
