@@ -1057,6 +1057,9 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute boo
 			st.Depth, st.DepthSigma = depth, depthSigma
 			partner = sw.Lines[1]
 		}
+		if g.OK && s.Kind == KindLine {
+			st.Reach = route.ReachOf(pts, st.Point, st.Dir)
+		}
 		for j, o := range res.Sources {
 			if j == 0 || j == partner {
 				continue

@@ -59,9 +59,10 @@ const phasorAlpha = 0.001
 
 // phasorSteps returns st (the magnitude step search's findings) with the
 // phasor steps of the AC stations ps (route order, repeats combined) put
-// in place of the magnitude findings over the same stretch. tau is the
-// route's between-station scatter of current, A (scatter.go).
-func phasorSteps(ps []Placed, st []Finding, set *Settings, tau float64) []Finding {
+// in place of the magnitude findings over the same stretch. The sizes
+// take no route-wide scatter of current or phase: they measure their own
+// on the transition fit's residuals (phasorFinding).
+func phasorSteps(ps []Placed, st []Finding, set *Settings) []Finding {
 	var u []*Placed
 	for k := range ps {
 		p := &ps[k]
@@ -124,6 +125,31 @@ func phasorSteps(ps []Placed, st []Finding, set *Settings, tau float64) []Findin
 		s := math.Sqrt(v[i] + excess*excess)
 		jump[i] = s > 0 && math.Abs(e[i]) > kz*s
 	}
+	// The ramp the sizes turn the phases back by, from the intervals
+	// clear of the runs of jumps: the stations beside a change read part
+	// of it (a few depths either side), and the intervals beside a jump
+	// turn by that share, many sigmas on a precise route, which shifts
+	// the median of all the intervals' rates (by some three times its
+	// spread for a 5° turn read with 0.012° phase sigmas, simulated).
+	// Its sigma is that of a median of the rates; the successive
+	// differences telescope, so this overstates the spread of the median
+	// (1.35 times on those routes), which leaves room for what remains
+	// of the shift. With fewer than three clear intervals the route's
+	// ramp stands.
+	sizeRamp, sizeRampSigma := ramp, rampSigma
+	var rc []float64
+	for i := 0; i < m; i++ {
+		if jump[i] || (i > 0 && jump[i-1]) || (i+1 < m && jump[i+1]) {
+			continue
+		}
+		if dt := t[i+1] - t[i]; dt > 0 {
+			rc = append(rc, d[i]/dt)
+		}
+	}
+	if len(rc) >= 3 {
+		sizeRamp = phasorMedian(rc)
+		sizeRampSigma = 1.2533 * 1.4826 * phasorMAD(rc, sizeRamp) / math.Sqrt(float64(len(rc)))
+	}
 	var out []Finding
 	drop := make([]bool, len(st))
 	for i := 0; i < m; {
@@ -160,7 +186,7 @@ func phasorSteps(ps []Placed, st []Finding, set *Settings, tau float64) []Findin
 			i = j + 1
 			continue
 		}
-		if f, ok := phasorFinding(u, t, ia, ib, lo, hi, ramp, rampSigma, excess, tau, set); ok {
+		if f, ok := phasorFinding(u, t, ia, ib, lo, hi, sizeRamp, sizeRampSigma, excess, set); ok {
 			for k := range st {
 				g := &st[k]
 				if (g.Kind == KindCurrentStep || g.Kind == KindCurrentChange) && g.From < f.To+1e-6 && g.To > f.From-1e-6 {
@@ -279,76 +305,18 @@ func mixedFrequency(u []*Placed, lo, hi int) bool {
 	return false
 }
 
-// phasorFit is the transition model fitted to the phasors of a run's
-// stations and their neighbours: P(x) = D + (U - D) f(x_f - x; H) +
-// g (x - x_f), f the share of a semi-infinite line (plateau.go), U and D
-// the levels either side (complex, A) and g a shared complex trend.
-type phasorFit struct {
-	xf, h   float64
-	c       [3]complex128
-	cov     [3][3]float64 // per component (real and imaginary alike)
-	chi2    float64
-	n       int
-	nBefore int
-	nAfter  int
-}
-
-// fitPhasors fits the transition at xf with width h to phasors p at
-// chainages x with per-component variances v; false when singular.
-func fitPhasors(x []float64, p []complex128, v []float64, xf, h float64) (phasorFit, bool) {
-	f := phasorFit{xf: xf, h: h, n: len(x)}
-	lv := lvFit{xf: xf, h: h}
-	var a [3][3]float64
-	var r [3]complex128
-	row := func(i int) [3]float64 {
-		w := lv.frac(x[i])
-		return [3]float64{w, 1 - w, x[i] - xf}
-	}
-	for i := range x {
-		z := row(i)
-		if z[0] > 0.5 {
-			f.nBefore++
-		} else {
-			f.nAfter++
-		}
-		for j := 0; j < 3; j++ {
-			r[j] += complex(z[j]/v[i], 0) * p[i]
-			for k := 0; k < 3; k++ {
-				a[j][k] += z[j] * z[k] / v[i]
-			}
-		}
-	}
-	inv, ok := invert(a, 3)
-	if !ok {
-		return f, false
-	}
-	f.cov = inv
-	for j := 0; j < 3; j++ {
-		for k := 0; k < 3; k++ {
-			f.c[j] += complex(inv[j][k], 0) * r[k]
-		}
-	}
-	for i := range x {
-		z := row(i)
-		m := f.c[0]*complex(z[0], 0) + f.c[1]*complex(z[1], 0) + f.c[2]*complex(z[2], 0)
-		d := p[i] - m
-		f.chi2 += (real(d)*real(d) + imag(d)*imag(d)) / v[i]
-	}
-	return f, true
-}
-
 // phasorFinding sizes the change of phasor between the stations u[ia] and
 // u[ib] (the run of phase jumps) by fitting the transition (phasorFit) to
 // the run's sound stations and up to phasorSideStations sound ones beyond
 // each end (not before lo nor after hi), the phases turned back by the
-// ramp first, and words it; false when the current leaving or the turn of
-// phase is not beyond StepK of its sigma.
-func phasorFinding(u []*Placed, t []float64, ia, ib, lo, hi int, ramp, rampSigma, excess, tau float64, set *Settings) (Finding, bool) {
+// ramp first (whose sigma rampSigma enters the sizes' sigmas), and words
+// it; false when the turn of phase is not beyond StepK of its sigma.
+// excess is the route's excess scatter of phase, for the wording.
+func phasorFinding(u []*Placed, t []float64, ia, ib, lo, hi int, ramp, rampSigma, excess float64, set *Settings) (Finding, bool) {
 	rad := math.Pi / 180
 	tm := (t[ia] + t[ib]) / 2
-	var x, v []float64
-	var p []complex128
-	var tb, ta float64 // mean times of the stations before and after
+	var obs []phasorObs
+	var reach [][]float64
 	var nb, na int
 	add := func(k int) {
 		q := u[k]
@@ -369,95 +337,142 @@ func phasorFinding(u []*Placed, t []float64, ia, ib, lo, hi int, ramp, rampSigma
 				w = math.Sqrt(math.Max(1, q.Chi2/float64(q.DOF)))
 			}
 		}
-		x = append(x, q.Chainage)
-		p = append(p, cmplx.Rect(q.Current, (q.Phase-ramp*(t[k]-tm))*rad))
-		ps := q.Current * math.Hypot(w*q.PhaseSigma, excess/math.Sqrt2) * rad
+		// Radial (the RMS current's) and tangential (the phase's)
+		// variances, from the station's own sigmas; any scatter beyond
+		// them is measured on the fit's residuals below.
 		cs := w * q.CurrentSigma
-		v = append(v, (cs*cs+tau*tau+ps*ps)/2)
+		ps := q.Current * w * q.PhaseSigma * rad
+		p := cmplx.Rect(q.Current, (q.Phase-ramp*(t[k]-tm))*rad)
+		obs = append(obs, newPhasorObs(q.Chainage, t[k]-tm, p, cs*cs, math.Max(ps*ps, 1e-12*cs*cs)))
+		reach = append(reach, q.Reach)
 		switch {
 		case k <= ia:
-			tb += t[k]
 			nb++
 		case k >= ib:
-			ta += t[k]
 			na++
 		}
 	}
 	for k := max(lo, ia-phasorSideStations); k <= min(hi, ib+phasorSideStations); k++ {
 		add(k)
 	}
-	if nb == 0 || na == 0 || len(x) < 4 {
+	if nb == 0 || na == 0 || len(obs) < 4 {
 		return Finding{}, false
 	}
-	tb /= float64(nb)
-	ta /= float64(na)
+	// Where every station's reach is known, each reads the change as
+	// the mean of a semi-infinite line's shares over its readings'
+	// distances (Station.Reach), scaled by the one fitted width: the
+	// reach over the fit's typical distance (the median of the stations'
+	// middle distances). A traverse 10 m across over a line 1.3 m below
+	// its sensors reads 11% of a change 2.5 m away and 0.27% of one
+	// 22.5 m away, where readings straight above at the width that fits
+	// the near stations (2 m) give 0.20%: the levels, taken partly from
+	// those far stations, came out drawn together by about 1.5 of their
+	// sigmas (a 5° turn read 4.97°, simulated). Else each reads at the
+	// width itself (readings straight above).
+	if ref := reachRef(reach); ref > 0 {
+		for i := range obs {
+			rr := make([]float64, len(reach[i]))
+			for j, r := range reach[i] {
+				rr[j] = r / ref
+			}
+			obs[i].rr = rr
+		}
+	}
 	xa, xb := u[ia].Chainage, u[ib].Chainage
 	sp := typicalSpacing(u)
-	var fits []phasorFit
-	best := -1
-	for gx := 0; gx < gridX; gx++ {
-		xf := xa + (xb-xa)*float64(gx)/float64(gridX-1)
-		for gh := -1; gh < gridH; gh++ {
-			h := 0.0
-			if gh >= 0 {
-				h = sp * minWidth * math.Pow(maxWidth/minWidth, float64(gh)/float64(gridH-1))
+	fits, fb, ok := fitTransition(obs, xa, xb, sp)
+	if !ok {
+		return Finding{}, false
+	}
+	// Scatter beyond the stations' sigmas, measured apart along and
+	// across the phasors on the fit's own residuals (each component
+	// given half the degrees of freedom), and the fit made again with
+	// each component's variances widened by its ratio. The route's
+	// between-station scatter of current (tau) and excess scatter of
+	// phase are measured on the stations' differences, which the
+	// stations near a change turn and shift by the share of it they read
+	// (a few depths either side, and a 3 A loss at 90° to 10 A turns the
+	// phase 17°): there they overstated the scatter several times over
+	// (pulls' sd 0.25 over 30 seeds, simulated through locate).
+	np := 6
+	if fb.free {
+		np = phasorNP
+	}
+	if half := float64(2*len(obs)-np) / 2; half > 0 {
+		cr, ct := fb.componentChi2(obs)
+		kr, kt := math.Max(1, cr/half), math.Max(1, ct/half)
+		if kr > 1 || kt > 1 {
+			for i := range obs {
+				obs[i].weigh(obs[i].vr*kr, obs[i].vt*kt)
 			}
-			f, ok := fitPhasors(x, p, v, xf, h)
-			if !ok || f.nBefore == 0 || f.nAfter == 0 {
-				continue
-			}
-			fits = append(fits, f)
-			if best < 0 || f.chi2 < fits[best].chi2 {
-				best = len(fits) - 1
+			if f2, b2, ok := fitTransition(obs, xa, xb, sp); ok {
+				fits, fb = f2, b2
 			}
 		}
 	}
-	if best < 0 {
-		return Finding{}, false
-	}
-	fb := fits[best]
-	dof := 2*len(x) - 8
+	fb.addRampError(obs, rampSigma)
+	dof := 2*len(obs) - phasorNP
 	scale := 1.0
 	if dof > 0 {
 		scale = math.Max(1, fb.chi2/float64(dof))
 	}
-	U, D := fb.c[0], fb.c[1]
+	U, D := fb.up(), fb.down()
 	L := U - D
-	// Per-component covariances of U, D and L, widened by the Birge ratio;
-	// the ramp's error turns D against U.
-	cUU, cDD, cUD := fb.cov[0][0]*scale, fb.cov[1][1]*scale, fb.cov[0][1]*scale
-	turnRamp := rampSigma * (ta - tb) * rad * cmplx.Abs(D)
-	cDD += turnRamp * turnRamp
-	cLL := cUU + cDD - 2*cUD
-	cLU := cUU - cUD
 	aL, aU, aD := cmplx.Abs(L), cmplx.Abs(U), cmplx.Abs(D)
 	if aL == 0 || aU == 0 || aD == 0 {
 		return Finding{}, false
 	}
-	mag, magSigma := aL, math.Sqrt(cLL)
+	// Sigmas from the gradients of each value by the parameters, the
+	// covariance widened by the Birge ratio.
+	sigma := func(g [phasorNP]float64) float64 { return math.Sqrt(scale * fb.phasorVar(g)) }
+	var gL, gAng, gTurn, gU, gD, gPU, gPD, gDiff [phasorNP]float64
+	lr, li := absGrad(L)
+	gL[0], gL[1], gL[2], gL[3] = lr, li, -lr, -li
+	alr, ali := argGrad(L)
+	aur, aui := argGrad(U)
+	adr, adi := argGrad(D)
+	gAng[0], gAng[1], gAng[2], gAng[3] = alr-aur, ali-aui, -alr, -ali
+	gTurn[0], gTurn[1], gTurn[2], gTurn[3] = -aur, -aui, adr, adi
+	ur, ui := absGrad(U)
+	dr, di := absGrad(D)
+	gU[0], gU[1] = ur, ui
+	gD[2], gD[3] = dr, di
+	gPU[0], gPU[1] = aur, aui
+	gPD[2], gPD[3] = adr, adi
+	gDiff[0], gDiff[1], gDiff[2], gDiff[3] = -ur, -ui, dr, di
+	mag, magSigma := aL, sigma(gL)
 	ang := wrapDeg((cmplx.Phase(L) - cmplx.Phase(U)) / rad)
-	dot := func(a, b complex128) float64 { return real(a * cmplx.Conj(b)) }
-	angVar := cLL/(aL*aL) + cUU/(aU*aU) - 2*cLU*dot(L, U)/(aL*aL*aU*aU)
+	angSigma := sigma(gAng) / rad
 	turn := wrapDeg((cmplx.Phase(D) - cmplx.Phase(U)) / rad)
-	turnVar := cDD/(aD*aD) + cUU/(aU*aU) - 2*cUD*dot(D, U)/(aD*aD*aU*aU)
-	// The location and width of the transition: the spread of the sizes
-	// over the grid points within the scale of the minimum.
-	var mLo, mHi, aLo, aHi = mag, mag, 0.0, 0.0
-	xLo, xHi := fb.xf, fb.xf
-	for _, f := range fits {
-		if f.chi2 > fb.chi2+scale {
-			continue
+	turnSigma := sigma(gTurn) / rad
+	sU, sD := sigma(gU), sigma(gD)
+	sPU, sPD := sigma(gPU)/rad, sigma(gPD)/rad
+	sDiff := sigma(gDiff)
+	var atSigma float64
+	if fb.free {
+		var g [phasorNP]float64
+		g[6] = 1
+		atSigma = sigma(g)
+	} else {
+		// The spread of the sizes and places over the grid points
+		// within the scale of the minimum.
+		var mLo, mHi, aLo, aHi = mag, mag, 0.0, 0.0
+		xLo, xHi := fb.xf(), fb.xf()
+		for _, f := range fits {
+			if f.chi2 > fb.chi2+scale {
+				continue
+			}
+			xLo, xHi = math.Min(xLo, f.xf()), math.Max(xHi, f.xf())
+			l := f.leaving()
+			m := cmplx.Abs(l)
+			mLo, mHi = math.Min(mLo, m), math.Max(mHi, m)
+			da := wrapDeg((cmplx.Phase(l)-cmplx.Phase(f.up()))/rad - ang)
+			aLo, aHi = math.Min(aLo, da), math.Max(aHi, da)
 		}
-		xLo, xHi = math.Min(xLo, f.xf), math.Max(xHi, f.xf)
-		l := f.c[0] - f.c[1]
-		m := cmplx.Abs(l)
-		mLo, mHi = math.Min(mLo, m), math.Max(mHi, m)
-		da := wrapDeg((cmplx.Phase(l)-cmplx.Phase(f.c[0]))/rad - ang)
-		aLo, aHi = math.Min(aLo, da), math.Max(aHi, da)
+		magSigma = math.Max(magSigma, (mHi-mLo)/2)
+		angSigma = math.Max(angSigma, (aHi-aLo)/2)
+		atSigma = math.Max((xHi-xLo)/2, (xb-xa)/float64(gridX-1))
 	}
-	magSigma = math.Max(magSigma, (mHi-mLo)/2)
-	angSigma := math.Max(math.Sqrt(math.Max(angVar, 0))/rad, (aHi-aLo)/2)
-	turnSigma := math.Sqrt(math.Max(turnVar, 0)) / rad
 	// A turn of phase beyond StepK of its sigma is itself current leaving
 	// (a phasor cannot turn unless another leaves it: at least |U| sin of
 	// the turn). Its size may still be loose where the far side's level
@@ -470,7 +485,21 @@ func phasorFinding(u []*Placed, t []float64, ia, ib, lo, hi int, ramp, rampSigma
 	// the route's end whose size is loose is also what a step of the
 	// grid frequency before the last station gives (phase continuous,
 	// no partial reading), and is left to the magnitude steps.
-	if !(math.Abs(turn) > set.stepK()*turnSigma) {
+	// Whether the phase turns at all is judged with the transition's
+	// place and width held at the fit's: its sigma then is that of the
+	// levels either side as read. Where a level rests on stations read
+	// partway through the change (near a route's end), the turn's size
+	// trades with the place and width and its reported sigma (above)
+	// is wide, though the stations' own phases show that it turns.
+	held := fb
+	if fb.free {
+		if f, ok := fitPhasorLevels(obs, fb.xf(), fb.h()); ok {
+			held = f
+			held.addRampError(obs, rampSigma)
+		}
+	}
+	turnHeld := math.Sqrt(scale*held.phasorVar(gTurn)) / rad
+	if !(math.Abs(turn) > set.stepK()*turnHeld) {
 		return Finding{}, false
 	}
 	loose := !(mag > set.stepK()*magSigma)
@@ -488,7 +517,6 @@ func phasorFinding(u []*Placed, t []float64, ia, ib, lo, hi int, ramp, rampSigma
 	}
 	ampU, ampD := aU, aD
 	phU, phD := cmplx.Phase(U)/rad, cmplx.Phase(D)/rad
-	sU, sD := math.Sqrt(cUU), math.Sqrt(cDD)
 	level := math.Max(ampU, ampD)
 	kind, severity := KindCurrentStep, SeverityWarning
 	head := "current leaves the conductor"
@@ -499,18 +527,16 @@ func phasorFinding(u []*Placed, t []float64, ia, ib, lo, hi int, ramp, rampSigma
 	}
 	msg := fmt.Sprintf("%s between %s (chainage %.1f m) and %s (%.1f m): %s A at %s° to the line current, the phasor difference of the levels either side (%s A ∠%s° and %s A ∠%s°): the phase turns by %s° where the RMS current changes by %s A, so the RMS currents alone do not measure it; if it is fed from the start of the route (if fed from the far end, as much joins it at that angle)",
 		head, label(a), a.Chainage, label(b), b.Chainage, pm(mag, magSigma), pm(ang, angSigma),
-		pm(ampU, sU), pm(phU, sU/ampU/rad), pm(ampD, sD), pm(phD, sD/ampD/rad),
-		pm(turn, turnSigma), pm(ampD-ampU, math.Sqrt(cUU+cDD)))
+		pm(ampU, sU), pm(phU, sPU), pm(ampD, sD), pm(phD, sPD),
+		pm(turn, turnSigma), pm(ampD-ampU, sDiff))
 	if ib-ia > 1 {
 		msg += fmt.Sprintf("; most of the change between %s and %s", label(u[big]), label(u[big+1]))
 	}
-	// The place of the change: the transition's location, to the spread
-	// of the locations the fit allows (one grid step at least), when that
-	// is under a quarter of the bracket.
-	atSigma := math.Max((xHi-xLo)/2, (xb-xa)/float64(gridX-1))
+	// The place of the change: the transition's location, when its
+	// sigma is under a quarter of the bracket.
 	resolved := atSigma < 0.25*(xb-xa)
 	if resolved {
-		msg += fmt.Sprintf("; most likely at chainage %s m", pm(fb.xf, atSigma))
+		msg += fmt.Sprintf("; most likely at chainage %s m", pm(fb.xf(), atSigma))
 	}
 	msg += fmt.Sprintf("; levels fitted with the transition from %d and %d stations", fb.nBefore, fb.nAfter)
 	if loose {
@@ -524,7 +550,7 @@ func phasorFinding(u []*Placed, t []float64, ia, ib, lo, hi int, ramp, rampSigma
 		msg += fmt.Sprintf(", the phases turned back first by the phase ramp along the route (%s)", what)
 	}
 	if excess > 0 {
-		msg += fmt.Sprintf("; the phases of neighbouring stations differ by %s° more than their sigmas say, which the sigmas here include", SigmaText(excess))
+		msg += fmt.Sprintf("; the phases of neighbouring stations differ by %s° more than their sigmas say (the sigmas here include the scatter the fit itself finds beyond the stations' sigmas)", SigmaText(excess))
 	}
 	f := Finding{
 		Kind:     kind,
@@ -537,20 +563,75 @@ func phasorFinding(u []*Placed, t []float64, ia, ib, lo, hi int, ramp, rampSigma
 			{Name: "current leaving", Value: mag, Sigma: magSigma, Unit: "A"},
 			{Name: "angle to line current", Value: ang, Sigma: angSigma, Unit: "deg"},
 			{Name: "current before", Value: ampU, Sigma: sU, Unit: "A"},
-			{Name: "phase before", Value: phU, Sigma: sU / ampU / rad, Unit: "deg"},
+			{Name: "phase before", Value: phU, Sigma: sPU, Unit: "deg"},
 			{Name: "current after", Value: ampD, Sigma: sD, Unit: "A"},
-			{Name: "phase after", Value: phD, Sigma: sD / ampD / rad, Unit: "deg"},
+			{Name: "phase after", Value: phD, Sigma: sPD, Unit: "deg"},
 			{Name: "phase turn", Value: turn, Sigma: turnSigma, Unit: "deg"},
 		},
 	}
 	if resolved {
-		f.Position = pointAt(u[ia:ib+1], fb.xf)
-		f.Values = append(f.Values, Value{Name: "location (chainage)", Value: fb.xf, Sigma: atSigma, Unit: "m"})
+		f.Position = pointAt(u[ia:ib+1], fb.xf())
+		f.Values = append(f.Values, Value{Name: "location (chainage)", Value: fb.xf(), Sigma: atSigma, Unit: "m"})
 	}
 	for k := ia; k <= ib; k++ {
 		f.Keys = append(f.Keys, u[k].Key)
 	}
 	return f, true
+}
+
+// fitTransition fits the transition to obs over the grid of places in
+// [xa, xb] and widths (sp the route's station spacing), refines the best
+// (refinePhasorFit) and returns the grid's fits and the best; false when
+// none fits. A sharp transition (no station reading part of it) or one
+// whose optimum lies on a bound keeps the grid's point, its levels'
+// covariance with the place and width held.
+func fitTransition(obs []phasorObs, xa, xb, sp float64) ([]phasorFit, phasorFit, bool) {
+	var fits []phasorFit
+	best := -1
+	for gx := 0; gx < gridX; gx++ {
+		xf := xa + (xb-xa)*float64(gx)/float64(gridX-1)
+		for gh := -1; gh < gridH; gh++ {
+			h := 0.0
+			if gh >= 0 {
+				h = sp * minWidth * math.Pow(maxWidth/minWidth, float64(gh)/float64(gridH-1))
+			}
+			f, ok := fitPhasorLevels(obs, xf, h)
+			if !ok || f.nBefore == 0 || f.nAfter == 0 {
+				continue
+			}
+			fits = append(fits, f)
+			if best < 0 || f.chi2 < fits[best].chi2 {
+				best = len(fits) - 1
+			}
+		}
+	}
+	if best < 0 {
+		return nil, phasorFit{}, false
+	}
+	fb := fits[best]
+	// The grid's best place and width refined, with the covariance of
+	// all eight parameters: the sizes' sigmas then carry the trade with
+	// the transition's place and width, and the place its own sigma.
+	if fb.h() > 0 {
+		if f, ok := refinePhasorFit(obs, fb, xa, xb, sp*maxWidth); ok && f.nBefore > 0 && f.nAfter > 0 {
+			fb = f
+		}
+	}
+	return fits, fb, true
+}
+
+// reachRef is the fit's typical distance from readings to the line: the
+// median of the stations' middle Reach values; 0 when any station's reach
+// is not known.
+func reachRef(reach [][]float64) float64 {
+	var mids []float64
+	for _, r := range reach {
+		if len(r) == 0 {
+			return 0
+		}
+		mids = append(mids, r[len(r)/2])
+	}
+	return phasorMedian(mids)
 }
 
 // phasorMedian returns the median of xs (not modified); 0 for none.

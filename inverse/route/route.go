@@ -150,7 +150,7 @@ func Build(stations []Station, set *Settings) (*Route, error) {
 	r.ModelScatter, r.ScatterWidening = modelScatter(outsideBends(one, set), set)
 	st, notes := steps(one, set, r.ModelScatter, r.ScatterWidening)
 	// AC: changes of phase sized as phasors (phasorstep.go).
-	st = phasorSteps(one, st, set, r.ModelScatter)
+	st = phasorSteps(one, st, set)
 	addRepeats(st, one)
 	if sc != nil && sc.split != nil {
 		splitSteps(st, sc)

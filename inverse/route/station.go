@@ -1,6 +1,10 @@
 package route
 
-import "time"
+import (
+	"math"
+	"sort"
+	"time"
+)
 
 // Station is the fit of one group (a traverse, a sensor or a time window),
 // reduced to the conductor the route follows. Positions are metres in a
@@ -124,6 +128,16 @@ type Station struct {
 	// (repeats.go walkedAgain); without it, repeats are told by chainage
 	// alone.
 	Traverse string
+	// Reach lists the distances (m) from the group's readings to the line
+	// it follows, as ReachQuantiles values that each carry an equal share
+	// of the fit's weight (a reading's weight in a line's current goes
+	// as 1/distance², the square of the field it reads); nil when not
+	// known. A station beside a change of current along the line, at d
+	// before it, reads the mean over them of a semi-infinite line's
+	// share, (1 + d/sqrt(d² + r²))/2 (Biot-Savart): a traverse that
+	// reaches several depths to the side reads a wider change, and
+	// further from it, than readings straight above (phasorfit.go).
+	Reach []float64
 	// Further lists the other line sources of the group's fit, besides
 	// the conductor the route follows (dipoles are not listed): a second
 	// conductor, or a source the fit added to absorb the main conductor's
@@ -173,3 +187,51 @@ type Object struct {
 // usable reports whether the station's current and depth may be used for
 // steps and cover.
 func (s *Station) usable() bool { return s.OK && !s.Dipole }
+
+// ReachQuantiles is the number of distances Station.Reach holds.
+const ReachQuantiles = 8
+
+// ReachOf returns the distances from the readings pts to the line through
+// point along dir as Station.Reach: ReachQuantiles distances at the
+// middles of equal shares of the readings' weights 1/distance² taken in
+// order of distance; nil when there are no readings or the line has no
+// direction.
+func ReachOf(pts [][3]float64, point, dir [3]float64) []float64 {
+	n := math.Sqrt(dir[0]*dir[0] + dir[1]*dir[1] + dir[2]*dir[2])
+	if len(pts) == 0 || !(n > 0) {
+		return nil
+	}
+	u := [3]float64{dir[0] / n, dir[1] / n, dir[2] / n}
+	rs := make([]float64, 0, len(pts))
+	for _, p := range pts {
+		d := [3]float64{p[0] - point[0], p[1] - point[1], p[2] - point[2]}
+		a := d[0]*u[0] + d[1]*u[1] + d[2]*u[2]
+		r := math.Sqrt(math.Max(0, d[0]*d[0]+d[1]*d[1]+d[2]*d[2]-a*a))
+		if r > 0 {
+			rs = append(rs, r)
+		}
+	}
+	if len(rs) == 0 {
+		return nil
+	}
+	sort.Float64s(rs)
+	var total float64
+	for _, r := range rs {
+		total += 1 / (r * r)
+	}
+	out := make([]float64, 0, ReachQuantiles)
+	var cum float64
+	k := 0
+	for _, r := range rs {
+		w := 1 / (r * r)
+		for k < ReachQuantiles && cum+w >= (float64(k)+0.5)/ReachQuantiles*total {
+			out = append(out, r)
+			k++
+		}
+		cum += w
+	}
+	for len(out) < ReachQuantiles {
+		out = append(out, rs[len(rs)-1])
+	}
+	return out
+}
