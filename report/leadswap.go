@@ -112,9 +112,14 @@ const swapTrackK = 3.0
 // into one track (found in review). Lines of one conductor far apart are
 // still joined through the groups between them.
 func (m swapLine) onTrackOf(l swapLine) bool {
+	return pointToLine(m.point, l.point, l.dir3)+m.drift(l) <= continuityReach
+}
+
+// drift is how far aside line l carried on to line m's point may pass
+// were its direction off by swapTrackK of its sigmas.
+func (m swapLine) drift(l swapLine) float64 {
 	d := [3]float64{m.point[0] - l.point[0], m.point[1] - l.point[1], m.point[2] - l.point[2]}
-	along := math.Abs(d[0]*l.dir3[0] + d[1]*l.dir3[1] + d[2]*l.dir3[2])
-	return pointToLine(m.point, l.point, l.dir3)+swapTrackK*along*l.turnSigma <= continuityReach
+	return swapTrackK * math.Abs(d[0]*l.dir3[0]+d[1]*l.dir3[1]+d[2]*l.dir3[2]) * l.turnSigma
 }
 
 // parallelTo reports whether a and b run within swapParallel degrees
@@ -128,16 +133,15 @@ func (a swapLine) parallelTo(b swapLine) bool {
 }
 
 // carries reports whether line m continues line l: parallel to it, on its
-// track (within continuityReach of it carried on, widened by swapTrackK
-// times the sideways drift its direction's sigma allows over the distance
-// carried: reach), with a current within
+// track (within continuityReach of it carried on, widened by the
+// distance l may pass aside so carried: drift), with a current within
 // a factor continuityLevel of l's or of o's (the conductor 1 of m's own
 // group: a fault may take most of a conductor's current, but a line
 // weaker than a quarter of either is no conductor of the two), flowing
 // the same way as l (DC; an AC current is an RMS, its sense in the
 // phase, not asked).
 func (m swapLine) carries(l, o swapLine, ac bool) bool {
-	if !m.ok || !l.ok || !m.parallelTo(l) || pointToLine(m.point, l.point, l.dir3) > m.reach(l) {
+	if !m.ok || !l.ok || !m.parallelTo(l) || pointToLine(m.point, l.point, l.dir3) > continuityReach+m.drift(l) {
 		return false
 	}
 	level := func(c float64) bool { return m.cur*continuityLevel >= c && m.cur <= continuityLevel*c }
@@ -152,15 +156,6 @@ func (m swapLine) carries(l, o swapLine, ac bool) bool {
 		way = -way
 	}
 	return way*l.signed > 0
-}
-
-// reach is the distance within which line m lies on line l's track
-// carried on to it, as carries asks: continuityReach, widened by
-// swapTrackK times l's direction sigma over the distance carried.
-func (m swapLine) reach(l swapLine) float64 {
-	d := [3]float64{m.point[0] - l.point[0], m.point[1] - l.point[1], m.point[2] - l.point[2]}
-	along := math.Abs(d[0]*l.dir3[0] + d[1]*l.dir3[1] + d[2]*l.dir3[2])
-	return continuityReach + swapTrackK*along*l.turnSigma
 }
 
 // aside is how far line m lies from line l of the same group across the
@@ -187,17 +182,23 @@ func swapFree(f *Fit) bool {
 	return true
 }
 
-// further is the usable further lines of f (no pair's), by index.
-func further(f *Fit, ac bool) map[int]swapLine {
+// indexedLine is a further line of a fit and its index there.
+type indexedLine struct {
+	j int
+	swapLine
+}
+
+// further is the usable further lines of f (no pair's), in f's order.
+func further(f *Fit, ac bool) []indexedLine {
 	r := f.Result
 	inPair := map[int]bool{}
 	for _, p := range r.Pairs {
 		inPair[p.Lines[0]], inPair[p.Lines[1]] = true, true
 	}
-	out := map[int]swapLine{}
+	var out []indexedLine
 	for j := 1; j < len(r.Sources); j++ {
 		if m := swapLineOf(&r.Sources[j], ac); m.ok && !inPair[j] {
-			out[j] = m
+			out = append(out, indexedLine{j, m})
 		}
 	}
 	return out
@@ -258,7 +259,7 @@ func swapPick(g, a *Fit, lg, la swapLine, ac bool) int {
 		return sum
 	}
 	pick, least := -1, misfit(0)
-	for j, m := range mg {
+	for _, m := range mg {
 		if !m.carries(la, lg, ac) {
 			continue
 		}
@@ -272,7 +273,7 @@ func swapPick(g, a *Fit, lg, la swapLine, ac bool) int {
 				continue
 			}
 			if f := misfit(xn); f < least {
-				pick, least = j, f
+				pick, least = m.j, f
 			}
 		}
 	}
