@@ -24,25 +24,35 @@ import (
 //
 // leadBySwap therefore follows one track. The groups' conductor 1 lines
 // are joined into tracks (the lines agree within crossAngle in plan and
-// one passes within continuityReach of the other carried on); the track
+// one passes within continuityReach of the other carried on, allowing for
+// the carried line's direction sigma: onTrackOf); the track
 // with the most groups is the route's, on a tie the one carrying the
 // larger current at some traverse (the conductor whose current changes;
 // the cable beside it carries the same the whole way). A group on another
 // track takes as conductor 1 its line on the route's track when the
 // nearest group already on it (by the readings' centres) shows the lead
 // changed between two parallel lines that both run on: the two groups'
-// conductor 1 lines are parallel (swapParallel) and apart (over
-// continuityReach), this group has a line parallel to the other's
-// conductor 1 on its track, with a current within a factor
-// continuityLevel of it or of this group's own conductor 1 (a fault may
-// take most of the current: 20 A of 25 A beside an 18 A cable) flowing
-// the same way, and the other group has a line on this one's conductor 1
-// track likewise. A bend of the route is not a swap (its lines are not
-// parallel), nor is a conductor that ends or a service that runs beside
-// the route for a few traverses only (the other line is missing on one
-// side). Where the fault lies in the first part of the route the cable is
-// the stronger at most traverses and is conductor 1 throughout, the
-// feeder a further conductor with its loss (its own current findings).
+// conductor 1 lines are parallel (swapParallel), this group has a line
+// parallel to the other's conductor 1 on its track (allowing for that
+// line's direction sigma over the distance carried), with a current
+// within a factor continuityLevel of it or of this group's own conductor
+// 1 (a fault may take most of the current: 20 A of 25 A beside an 18 A
+// cable) flowing the same way, the other group has a line on this one's
+// conductor 1 track likewise, over continuityReach aside from its own
+// conductor 1, and the lines side by side at the two traverses match
+// better with the lead exchanged than without (swapPick). A group whose
+// conductor 1 lies on its neighbour's carried on, and is not exchanged,
+// joins the route's track and guides the groups beyond it. A bend of the
+// route is not a swap (its lines are not parallel), nor is a conductor
+// that ends or a service that runs beside the route for a few traverses
+// only (the other line is missing on one side). Where the fault lies in
+// the first part of the route the cable is the stronger at most
+// traverses and is conductor 1 throughout, the feeder a further conductor
+// with its loss (its own current findings). Where the lines' directions
+// are too loosely known to join most traverses' into tracks (a 2.5 A
+// feeder beside a 1.8 A cable, traverses 60 m apart), the route's track
+// is the longest of short ones, not the conductor that is the stronger at
+// most traverses: conductor 1 then keeps to either, the whole way.
 // Run after leadByContinuity and leadByPosition.
 
 // swapParallel is the angle in plan, degrees, within which the lines of
@@ -59,6 +69,10 @@ type swapLine struct {
 	plan        [2]float64
 	cur, signed float64
 	azSigma     float64
+	// turnSigma is the one-sigma angle, radians, by which the line's
+	// direction in space may be off (its azimuth and dip sigmas
+	// combined): carried a distance L, it may pass L times that aside.
+	turnSigma   float64
 	point, dir3 [3]float64
 }
 
@@ -74,7 +88,38 @@ func swapLineOf(s *inverse.SourceEstimate, ac bool) swapLine {
 	if !finite(sa) || sa < 0 {
 		sa = 0
 	}
-	return swapLine{ok: true, plan: v, cur: math.Abs(s.Current), signed: s.Current, azSigma: sa, point: s.Point, dir3: s.Dir}
+	sd := 0.0
+	if s.Identifiable.Dip && finite(s.DipSigma) && s.DipSigma > 0 {
+		sd = s.DipSigma
+	}
+	return swapLine{ok: true, plan: v, cur: math.Abs(s.Current), signed: s.Current, azSigma: sa,
+		turnSigma: math.Hypot(sa, sd) * math.Pi / 180, point: s.Point, dir3: s.Dir}
+}
+
+// swapTrackK is the number of sigmas of a line's direction allowed for
+// when it is carried on to another group's line: to join the two into
+// one track only where they meet even so (onTrackOf), to take a line as
+// continuing it where they may (carries).
+const swapTrackK = 3.0
+
+// onTrackOf reports whether line m lies on line l's track: within
+// continuityReach of l carried on to it, even were l's direction off by
+// swapTrackK of its sigmas over the distance carried. Carried far, a
+// line's direction does not tell one conductor from another beside it:
+// with traverses 60 m apart, a feeder's line carried 540 m on passed
+// 1.8 m from the cable 3 m beside it (its direction off by 0.13 degrees,
+// twice its sigma), and the feeder's and the cable's groups were joined
+// into one track (found in review). Lines of one conductor far apart are
+// still joined through the groups between them.
+func (m swapLine) onTrackOf(l swapLine) bool {
+	return pointToLine(m.point, l.point, l.dir3)+m.drift(l) <= continuityReach
+}
+
+// drift is how far aside line l carried on to line m's point may pass
+// were its direction off by swapTrackK of its sigmas.
+func (m swapLine) drift(l swapLine) float64 {
+	d := [3]float64{m.point[0] - l.point[0], m.point[1] - l.point[1], m.point[2] - l.point[2]}
+	return swapTrackK * math.Abs(d[0]*l.dir3[0]+d[1]*l.dir3[1]+d[2]*l.dir3[2]) * l.turnSigma
 }
 
 // parallelTo reports whether a and b run within swapParallel degrees
@@ -88,14 +133,15 @@ func (a swapLine) parallelTo(b swapLine) bool {
 }
 
 // carries reports whether line m continues line l: parallel to it, on its
-// track (within continuityReach of it carried on), with a current within
+// track (within continuityReach of it carried on, widened by the
+// distance l may pass aside so carried: drift), with a current within
 // a factor continuityLevel of l's or of o's (the conductor 1 of m's own
 // group: a fault may take most of a conductor's current, but a line
 // weaker than a quarter of either is no conductor of the two), flowing
 // the same way as l (DC; an AC current is an RMS, its sense in the
 // phase, not asked).
 func (m swapLine) carries(l, o swapLine, ac bool) bool {
-	if !m.ok || !l.ok || !m.parallelTo(l) || pointToLine(m.point, l.point, l.dir3) > continuityReach {
+	if !m.ok || !l.ok || !m.parallelTo(l) || pointToLine(m.point, l.point, l.dir3) > continuityReach+m.drift(l) {
 		return false
 	}
 	level := func(c float64) bool { return m.cur*continuityLevel >= c && m.cur <= continuityLevel*c }
@@ -110,6 +156,14 @@ func (m swapLine) carries(l, o swapLine, ac bool) bool {
 		way = -way
 	}
 	return way*l.signed > 0
+}
+
+// aside is how far line m lies from line l of the same group across the
+// plan direction u (unit), to its right: the side on which it lies, the
+// same at every traverse for two parallel conductors whatever their
+// lines' directions (they lie side by side at the one traverse).
+func (m swapLine) aside(l swapLine, u [2]float64) float64 {
+	return (m.point[0]-l.point[0])*u[1] - (m.point[1]-l.point[1])*u[0]
 }
 
 // swapFree reports whether f's lines may be reordered here: a usable fit
@@ -128,25 +182,99 @@ func swapFree(f *Fit) bool {
 	return true
 }
 
-// otherOn is the index of the further line of f that continues line l
-// (carries; o is f's conductor 1), the nearest to it; -1 when none does.
-func otherOn(f *Fit, l, o swapLine, ac bool) int {
+// indexedLine is a further line of a fit and its index there.
+type indexedLine struct {
+	j int
+	swapLine
+}
+
+// further is the usable further lines of f (no pair's), in f's order.
+func further(f *Fit, ac bool) []indexedLine {
 	r := f.Result
 	inPair := map[int]bool{}
 	for _, p := range r.Pairs {
 		inPair[p.Lines[0]], inPair[p.Lines[1]] = true, true
 	}
-	pick, best := -1, math.Inf(1)
+	var out []indexedLine
 	for j := 1; j < len(r.Sources); j++ {
-		if inPair[j] {
+		if m := swapLineOf(&r.Sources[j], ac); m.ok && !inPair[j] {
+			out = append(out, indexedLine{j, m})
+		}
+	}
+	return out
+}
+
+// swapPick is the further line of g to become its conductor 1, that of a
+// (its nearest group on the route's track) continuing it; -1 for none.
+// The lead changed between two parallel lines where g has a further line
+// m on a's conductor 1 track (carries), a a further line n on g's
+// conductor 1 track likewise, and the two traverses' cross-sections agree
+// better so: each group's lines parallel to a's conductor 1 are placed
+// across it (aside) and by height, g's moved across to put its conductor
+// 1 at n's place, and each of g's lines is matched with the nearest of
+// a's not yet taken, at most continuityReach counted for a line matched
+// with none; the sum is smaller moved than not (m, over continuityReach
+// from g's conductor 1, lies within it of the mirror place of n). Side by
+// side at one traverse, lines' places are known to millimetres, where
+// carried from one traverse to another 60 m on, a line 1.8 A strong at
+// 1.3 m depth (azimuth and dip sigmas about 0.6 and 0.45 degrees) may
+// pass 1 m aside: taken by the carried distance alone, conductor 1 moved
+// onto the cable midway at seed 7 of the Sallow Holt survey at a tenth of
+// its currents (a false rise of 0.63 A). The whole cross-section, not the
+// one line m, decides where a third line runs beside the two (a service
+// 3 m on the far side of the feeder, where m may lie where the service
+// did at a; the heights part them).
+func swapPick(g, a *Fit, lg, la swapLine, ac bool) int {
+	u := la.plan
+	type place struct{ x, z float64 }
+	mg, na := further(g, ac), further(a, ac)
+	pa, pg := []place{{0, la.point[2]}}, []place{{0, lg.point[2]}}
+	for _, n := range na {
+		if n.parallelTo(la) {
+			pa = append(pa, place{n.aside(la, u), n.point[2]})
+		}
+	}
+	for _, m := range mg {
+		if m.parallelTo(la) {
+			pg = append(pg, place{m.aside(lg, u), m.point[2]})
+		}
+	}
+	// misfit sums the distances of g's lines, g's conductor 1 put at s
+	// across a's, from the nearest of a's lines not yet taken.
+	misfit := func(s float64) float64 {
+		taken := make([]bool, len(pa))
+		sum := 0.0
+		for _, p := range pg {
+			bi, bd := -1, continuityReach
+			for i, q := range pa {
+				if d := math.Hypot(p.x+s-q.x, p.z-q.z); !taken[i] && d < bd {
+					bi, bd = i, d
+				}
+			}
+			if bi >= 0 {
+				taken[bi] = true
+			}
+			sum += bd
+		}
+		return sum
+	}
+	pick, least := -1, misfit(0)
+	for _, m := range mg {
+		if !m.carries(la, lg, ac) {
 			continue
 		}
-		m := swapLineOf(&r.Sources[j], ac)
-		if !m.carries(l, o, ac) {
-			continue
-		}
-		if d := pointToLine(m.point, l.point, l.dir3); d < best {
-			pick, best = j, d
+		xm := m.aside(lg, u)
+		for _, n := range na {
+			if !n.carries(lg, la, ac) {
+				continue
+			}
+			xn := n.aside(la, u)
+			if math.Abs(xn) <= continuityReach || math.Abs(xm+xn) > continuityReach {
+				continue
+			}
+			if f := misfit(xn); f < least {
+				pick, least = m.j, f
+			}
 		}
 	}
 	return pick
@@ -180,7 +308,7 @@ func leadBySwap(fits []Fit, ac bool) {
 		return
 	}
 	// The tracks: conductor 1 lines joined where they agree in plan and
-	// one lies on the other carried on.
+	// one lies on the other carried on (onTrackOf).
 	root := make([]int, n)
 	for i := range root {
 		root[i] = i
@@ -199,7 +327,7 @@ func leadBySwap(fits []Fit, ac bool) {
 			if !planAgree(la.plan, lb.plan) {
 				continue
 			}
-			if pointToLine(lb.point, la.point, la.dir3) <= continuityReach || pointToLine(la.point, lb.point, lb.dir3) <= continuityReach {
+			if lb.onTrackOf(la) || la.onTrackOf(lb) {
 				root[find(a)] = find(b)
 			}
 		}
@@ -284,12 +412,22 @@ func leadBySwap(fits []Fit, ac bool) {
 		delete(open, gi)
 		g, a := &fits[gi], &fits[ai]
 		lg, la := leads[gi], leads[ai]
-		if !swapFree(g) || !lg.parallelTo(la) ||
-			pointToLine(lg.point, la.point, la.dir3) <= continuityReach {
+		if !lg.parallelTo(la) {
 			continue
 		}
-		pick := otherOn(g, la, lg, ac)
-		if pick < 0 || otherOn(a, lg, la, ac) < 0 {
+		pick := -1
+		if swapFree(g) {
+			pick = swapPick(g, a, lg, la, ac)
+		}
+		if pick < 0 {
+			// On the route's track where its neighbour carries it on,
+			// though not joined to it at first (its own line, or the
+			// neighbour's, too loosely fixed in direction to carry
+			// far): it guides the groups beyond it.
+			if pointToLine(lg.point, la.point, la.dir3) <= continuityReach {
+				onMain[gi] = true
+				join(gi)
+			}
 			continue
 		}
 		g.Result = withLead(g.Result, pick)
