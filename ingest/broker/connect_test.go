@@ -29,10 +29,11 @@ func TestConnectErrorsNameTheCause(t *testing.T) {
 	}
 
 	// A port that closes without a greeting, as an MQTT listener does.
-	ln, err := net.Listen("tcp", "127.0.0.1:46153")
+	ln, err := net.Listen("tcp", "127.0.0.1:0")
 	if err != nil {
 		t.Fatal(err)
 	}
+	silent := ln.Addr().String()
 	defer ln.Close()
 	go func() {
 		for {
@@ -43,12 +44,12 @@ func TestConnectErrorsNameTheCause(t *testing.T) {
 			c.Close()
 		}
 	}()
-	_, err = Connect("nats://127.0.0.1:46153", "test", Auth{})
-	if err == nil || !strings.Contains(err.Error(), "127.0.0.1:46153") || !strings.Contains(err.Error(), "NATS client port") {
+	_, err = Connect("nats://"+silent, "test", Auth{})
+	if err == nil || !strings.Contains(err.Error(), silent) || !strings.Contains(err.Error(), "NATS client port") {
 		t.Errorf("a port without a NATS greeting: %v; want the URL and a hint about the client port", err)
 	}
 
-	srv, err := StartServer(ServerConfig{StoreDir: t.TempDir(), Host: "127.0.0.1", Port: 46154, MQTTPort: -1,
+	srv, err := StartServer(ServerConfig{StoreDir: t.TempDir(), Host: "127.0.0.1", Port: 0, MQTTPort: -1,
 		Users: []User{{Name: "pipeline", Password: "harrow-fen-pipeline"}}})
 	if err != nil {
 		t.Fatal(err)
@@ -96,7 +97,7 @@ func TestConnectTLSWithPrivateCA(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	ns, err := server.NewServer(&server.Options{Host: "127.0.0.1", Port: 46160, NoSigs: true, TLS: true, TLSVerify: true, TLSConfig: tc, TLSTimeout: 2})
+	ns, err := server.NewServer(&server.Options{Host: "127.0.0.1", Port: server.RANDOM_PORT, NoSigs: true, TLS: true, TLSVerify: true, TLSConfig: tc, TLSTimeout: 2})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -105,7 +106,7 @@ func TestConnectTLSWithPrivateCA(t *testing.T) {
 	if !ns.ReadyForConnections(10 * time.Second) {
 		t.Fatal("TLS server not ready")
 	}
-	url := "tls://127.0.0.1:46160"
+	url := "tls://" + ns.Addr().String()
 
 	nc, err := Connect(url, "test", Auth{CAFile: caFile, CertFile: cliCert, KeyFile: cliKey})
 	if err != nil {
