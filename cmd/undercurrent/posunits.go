@@ -36,33 +36,38 @@ func medianSurveySpeed(s *ingest.Samples) (float64, bool) {
 		return 0, false
 	}
 	var speeds []float64
-	last := -1
+	// The last reading a stride starts from, per group: sensors logged
+	// interleaved (a cart's several sensors, one group each) each keep
+	// their own.
+	last := map[string]int{}
 	for i := range s.Time {
 		t := s.Time[i]
 		if math.IsNaN(t) || math.IsNaN(s.X[i]) || math.IsNaN(s.Y[i]) {
 			continue
 		}
-		if last >= 0 && s.Group != nil && s.Group[i] != s.Group[last] {
-			last = -1
+		g := ""
+		if s.Group != nil {
+			g = s.Group[i]
 		}
-		if last < 0 {
-			last = i
+		j, ok := last[g]
+		if !ok {
+			last[g] = i
 			continue
 		}
-		dt := t - s.Time[last]
+		dt := t - s.Time[j]
 		if dt < 0 {
-			last = i // time running back: start again here
+			last[g] = i // time running back: start again here
 			continue
 		}
 		if dt < speedStride {
 			continue
 		}
-		d := math.Hypot(s.X[i]-s.X[last], s.Y[i]-s.Y[last])
-		if s.Z != nil && !math.IsNaN(s.Z[i]) && !math.IsNaN(s.Z[last]) {
-			d = math.Hypot(d, s.Z[i]-s.Z[last])
+		d := math.Hypot(s.X[i]-s.X[j], s.Y[i]-s.Y[j])
+		if s.Z != nil && !math.IsNaN(s.Z[i]) && !math.IsNaN(s.Z[j]) {
+			d = math.Hypot(d, s.Z[i]-s.Z[j])
 		}
 		speeds = append(speeds, d/dt)
-		last = i
+		last[g] = i
 	}
 	if len(speeds) < 10 {
 		return 0, false
