@@ -42,6 +42,18 @@ type arrowReader struct {
 	rb               rawBatch
 	done             bool
 	ended            bool // Next reached the end of the input (see Release)
+	// narrow holds, for each position column stored as floats narrower
+	// than 64 bits, its significand bits and largest magnitude read
+	// (notePositionSteps).
+	narrow [nCanon]narrowColumn
+}
+
+// narrowColumn is a position column stored as 32- or 16-bit floats: bits
+// is the significand's precision (24 or 11; 0 for a column that is not),
+// max the largest |value| read, in the column's unit.
+type narrowColumn struct {
+	bits int
+	max  float64
 }
 
 func (r *arrowReader) plan() *plan                    { return r.pl }
@@ -297,6 +309,7 @@ func (r *arrowReader) Next() bool {
 		if rec == nil {
 			r.ended = true
 			r.pl.finishGroups()
+			r.notePositionSteps()
 			r.Release()
 			return false
 		}
@@ -614,6 +627,9 @@ func (r *arrowReader) floats(dst []float64, arr arrow.Array, c int) ([]float64, 
 	col := pl.header[pl.src[c]]
 	scale := pl.scale[c]
 	n := arr.Len()
+	if isPositionColumn(c) {
+		r.noteNarrow(arr, c)
+	}
 	for i := 0; i < n; i++ {
 		v, text, k := cell(arr, i)
 		s := scale
@@ -678,4 +694,98 @@ func appendStrings(dst []string, arr arrow.Array) []string {
 		dst = append(dst, arr.ValueStr(i))
 	}
 	return dst
+}
+
+// positionStepLimit is the coarsest step, m, a position column's storage
+// may have without a warning: 1 cm, under the spread of a satellite
+// position and the centimetres a fit's depth is quoted to.
+const positionStepLimit = 0.01
+
+// metresPerDegree is the length of a degree of latitude, about 111.3 km
+// (a degree of longitude is that times the cosine of the latitude, so
+// no longer).
+const metresPerDegree = 111320.0
+
+// isPositionColumn says whether canonical column c holds a position.
+func isPositionColumn(c int) bool {
+	switch c {
+	case cX, cY, cZ, cLat, cLon, cHeight:
+		return true
+	}
+	return false
+}
+
+// noteNarrow records the largest |value| of position column c when arr
+// holds 32- or 16-bit floats.
+func (r *arrowReader) noteNarrow(arr arrow.Array, c int) {
+	nc := &r.narrow[c]
+	switch a := arr.(type) {
+	case *array.Float32:
+		nc.bits = 24
+		for i, v := range a.Float32Values() {
+			if a.IsValid(i) {
+				nc.max = math.Max(nc.max, math.Abs(float64(v)))
+			}
+		}
+	case *array.Float16:
+		nc.bits = 11
+		for i := 0; i < a.Len(); i++ {
+			if a.IsValid(i) {
+				nc.max = math.Max(nc.max, math.Abs(float64(a.Value(i).Float32())))
+			}
+		}
+	}
+}
+
+// floatStep is the spacing of binary floats with a bits-bit significand
+// at magnitude m: 2^(e-bits) for m = f 2^e, f in [0.5, 1).
+func floatStep(m float64, bits int) float64 {
+	_, e := math.Frexp(m)
+	return math.Ldexp(1, e-bits)
+}
+
+// notePositionSteps warns of each position column stored as 32- or 16-bit
+// floats whose values are large enough that the floats step by more than
+// positionStepLimit: a 32-bit northing near 5.8e6 m steps by 0.5 m and a
+// 32-bit latitude near 52 degrees by 3.8e-6 degrees (0.42 m), which moves
+// every reading of a traverse alike and biases its fit with no sign in
+// the readings. The values are read as stored; the warning names the
+// column, its storage and the step.
+func (r *arrowReader) notePositionSteps() {
+	pl := r.pl
+	for c := range r.narrow {
+		nc := r.narrow[c]
+		if nc.bits == 0 || nc.max == 0 || pl.src[c] < 0 {
+			continue
+		}
+		step := floatStep(nc.max, nc.bits)
+		kind := "32-bit"
+		if nc.bits == 11 {
+			kind = "16-bit"
+		}
+		col := quoteText(pl.header[pl.src[c]])
+		if h := pl.header[pl.src[c]]; h != canonNames[c] {
+			col += " (" + canonNames[c] + ")"
+		}
+		var what string
+		switch c {
+		case cLat, cLon:
+			m := step * metresPerDegree
+			if m <= positionStepLimit {
+				continue
+			}
+			about := "about"
+			if c == cLon {
+				about = "up to"
+			}
+			what = fmt.Sprintf("at %.6g degrees they step by %.2g degrees (%s %.2g m)", nc.max, step, about, m)
+		default:
+			m := step * pl.scale[c]
+			if m <= positionStepLimit {
+				continue
+			}
+			what = fmt.Sprintf("at %.7g (its largest value) they step by %.2g m", nc.max, m)
+		}
+		pl.warn("%s: column %s is stored as %s floats: %s, coarser than the %g m a position needs: each reading's position is rounded by up to half a step, much alike along a traverse, which biases every traverse's fit the same way and beyond its sigmas; store it as 64-bit floats, or subtract a site offset from projected coordinates before storing them", r.name, col, kind, what, positionStepLimit)
+	}
 }

@@ -242,8 +242,10 @@ func TestCSVEarlyRelease(t *testing.T) {
 
 func TestCSVGeodetic(t *testing.T) {
 	// Positions 0.001 deg north and east of the first reading, at the
-	// DOMAIN.md check point (40.137 N, -105.236 E, 1682 m): expect
-	// (0, 111.066633, -0.000969) and (85.245398, 0.00048, -0.000569) m.
+	// DOMAIN.md check point (40.137 N, -105.236 E, 1682 m): expect east
+	// and north (0, 111.066633) and (85.245398, 0.00048) m, the tangent
+	// plane's; up is the height above the origin's, 0 for both (the tangent
+	// plane's own up there is -0.000969 and -0.000569 m).
 	const tol = 2e-6
 	text := "time,lat,lon,height,bx,by,bz\n0,40.137,-105.236,1682,1,2,3\n1,40.138,-105.236,1682,1,2,3\n2,40.137,-105.235,1682,1,2,3\n"
 	p := writeFile(t, "gps.csv", text)
@@ -254,7 +256,7 @@ func TestCSVGeodetic(t *testing.T) {
 	if s.Origin == nil || *s.Origin != (Geodetic{40.137, -105.236, 1682}) {
 		t.Fatalf("origin = %v, want the first reading", s.Origin)
 	}
-	want := [][3]float64{{0, 0, 0}, {0, 111.066633, -0.000969}, {85.245398, 0.00048, -0.000569}}
+	want := [][3]float64{{0, 0, 0}, {0, 111.066633, 0}, {85.245398, 0.00048, 0}}
 	for i, w := range want {
 		got := [3]float64{s.X[i], s.Y[i], s.Z[i]}
 		for k := range w {

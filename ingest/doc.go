@@ -69,6 +69,14 @@
 //	n = -sin phi cos lam dX - sin phi sin lam dY + cos phi dZ
 //	u =  cos phi cos lam dX + cos phi sin lam dY + sin phi dZ
 //
+// taken for the point at the reading's latitude and longitude on the
+// origin's height, and the reading's up is its height above the origin's
+// height, h - h0 (Geodetic.ToLocal). The tangent plane's own up u falls
+// away from the ellipsoid by about d^2/(2R) at a distance d from the origin
+// (0.31 m at 2 km); with up a height, a level ground keeps one up over the
+// whole survey, as in a projected log, and a ground level given as a height
+// holds everywhere.
+//
 // IAGA-2002 (INTERMAGNET technical manual) element sets become ENU nT with
 // X north, Y east, Z down: XYZ gives (Y, X, -Z); HDZ gives
 // (H sin D, H cos D, -Z) with D in minutes of arc; HEZ gives (E, H, -Z) with E

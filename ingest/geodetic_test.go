@@ -65,3 +65,33 @@ func TestGeodeticFromENURoundTrip(t *testing.T) {
 		}
 	}
 }
+
+// TestGeodeticLocalUpIsHeight checks ToLocal: up is the height above the
+// origin's height at any distance (a point 5 km off at the origin's height
+// has up 0, where the tangent plane's up is about -d^2/(2R) = -1.96 m, R
+// from memory), east and north are ToENU's on the origin's height, and
+// FromLocal inverts it.
+func TestGeodeticLocalUpIsHeight(t *testing.T) {
+	origins := []Geodetic{{52.0, 0.5, 10}, {-33.9, 151.2, 40}, {40.137, -105.236, 1682}}
+	for _, o := range origins {
+		for _, enu := range [][3]float64{{0, 0, 0}, {120.5, -80.25, 1.5}, {-3000, 2500, -20}, {4000, 3000, 0}} {
+			p := o.FromENU(enu)
+			p.H = o.H + 0.3 // level ground 0.3 m below the reading
+			l := o.ToLocal(p)
+			if math.Abs(l[2]-0.3) > 1e-9 {
+				t.Errorf("origin %v enu %v: up %.9f, want the height above the origin's, 0.3", o, enu, l[2])
+			}
+			on := o.ToENU(Geodetic{p.Lat, p.Lon, o.H})
+			if math.Abs(l[0]-on[0]) > 1e-9 || math.Abs(l[1]-on[1]) > 1e-9 {
+				t.Errorf("origin %v enu %v: east, north %v, want ToENU's on the origin's height %v", o, enu, l, on)
+			}
+			if d := math.Hypot(enu[0], enu[1]); d > 4000 && on[2] > -1 {
+				t.Errorf("origin %v: the tangent plane's up %.3f m at %.0f m, want about -d^2/2R", o, on[2], d)
+			}
+			back := o.FromLocal(l)
+			if math.Abs(back.Lat-p.Lat) > 1e-11 || math.Abs(back.Lon-p.Lon) > 1e-11 || math.Abs(back.H-p.H) > 1e-7 {
+				t.Errorf("origin %v enu %v: FromLocal(ToLocal) = %v, want %v", o, enu, back, p)
+			}
+		}
+	}
+}

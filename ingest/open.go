@@ -237,7 +237,7 @@ func meanOrigin(path string, cfg *config) (*Geodetic, error) {
 	if n == 0 || pl.origin == nil {
 		return nil, nil
 	}
-	o := pl.origin.FromENU([3]float64{sum[0] / n, sum[1] / n, sum[2] / n})
+	o := pl.origin.FromLocal([3]float64{sum[0] / n, sum[1] / n, sum[2] / n})
 	return &o, nil
 }
 

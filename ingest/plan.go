@@ -1026,7 +1026,7 @@ func (p *plan) transform(rb *rawBatch) {
 			if h != nil {
 				g.H = h[i]
 			}
-			e := p.enu.toENU(g)
+			e := p.enu.toLocal(g)
 			rb.f[cX][i], rb.f[cY][i], rb.f[cZ][i] = e[0], e[1], e[2]
 		}
 	}

@@ -457,12 +457,12 @@ func (f *fitter) summariseAsIs(c *candidate) (*summary, error) {
 	for l, g := range sp.geom {
 		b := base[l*nq : (l+1)*nq]
 		e := SourceEstimate{Kind: "line"}
-		e.Point = [3]float64{b[qPointE], b[qPointN], b[qPointU]}
+		e.Point = add(f.sv.centroid, [3]float64{b[qPointE], b[qPointN], b[qPointU]})
 		e.Dir = dirOf(b[qAzimuth]*math.Pi/180, b[qDip]*math.Pi/180)
 		e.Current, e.CurrentSigma = b[qCurrent], sigmaOf(l*nq+qCurrent)
 		e.Depth, e.DepthSigma = b[qDepth], sigmaOf(l*nq+qDepth)
 		_, crossing := f.sv.stationAlong(sub(f.sv.centroid, e.Point), e.Dir)
-		su.under = append(su.under, underPoint{point: [3]float64{b[qUnderE], b[qUnderN], b[qUnderU]},
+		su.under = append(su.under, underPoint{point: add(f.sv.centroid, [3]float64{b[qUnderE], b[qUnderN], b[qUnderU]}),
 			depth: b[qUnderDepth], depthSigma: sigmaOf(l*nq + qUnderDepth), crossing: crossing})
 		if h := math.Hypot(e.Dir[0], e.Dir[1]); !crossing && f.sv.walked && f.sv.spread[0] > 0 && h >= 0.5 {
 			// A walked traverse running nearly along the line (stationAlong).
@@ -718,7 +718,9 @@ const EdgeOfSearchNote = "at the edge of the region searched (twice the readings
 // weakLine is the fraction of the strongest current below which a line gets a caution.
 const weakLine = 0.02
 
-// Indices of the reported quantities per line in deriveQuantities.
+// Indices of the reported quantities per line in deriveQuantities. The points
+// (qPointE..qPointU, qUnderE..qUnderU) are about the readings' centroid
+// (survey.centroid), not absolute.
 const (
 	qPointE = iota
 	qPointN
@@ -816,24 +818,32 @@ func deriveQuantities(sp *separable, sv *survey, zref float64, flip []bool, v []
 		out = make([]float64, nl*nQuantities)
 	}
 	out = out[:nl*nQuantities]
+	// Points are taken about the readings' centroid: the differences of
+	// the gradients' steps (a ten-thousandth of a sigma, down to 1e-9 m)
+	// are lost in absolute coordinates of 1e6-1e7 m (projected northings),
+	// whose floats step by 1e-10-2e-9 m.
+	zc := zref - sv.centroid[2]
 	for l, g := range geom {
-		ln := g.line()
-		u := ln.Dir
+		// The line's point about the centroid: anchor less centroid is exact
+		// for two nearby points, and the step along n0 is added to it.
+		rel := add(sub(g.anchor, sv.centroid), scale(g.n0, g.s))
+		rel[2] = g.z - sv.centroid[2]
+		u := dirOf(g.az, g.dip)
 		az, dip := g.az, g.dip
 		if flip[l] {
 			u = scale(u, -1)
 			az, dip = az+math.Pi, -dip
 		}
-		pt := add(ln.Point, scale(u, dot(sub(sv.centroid, ln.Point), u)))
-		along, _ := sv.stationAlong(sub(sv.centroid, ln.Point), u)
-		under := add(ln.Point, scale(u, along))
+		pt := add(rel, scale(u, -dot(rel, u)))
+		along, _ := sv.stationAlong(scale(rel, -1), u)
+		under := add(rel, scale(u, along))
 		right := [3]float64{math.Cos(az), -math.Sin(az), 0}
 		o := out[l*nQuantities:]
 		o[qPointE], o[qPointN], o[qPointU] = pt[0], pt[1], pt[2]
-		o[qDepth] = zref - pt[2]
+		o[qDepth] = zc - pt[2]
 		o[qUnderE], o[qUnderN], o[qUnderU] = under[0], under[1], under[2]
-		o[qUnderDepth] = zref - under[2]
-		o[qOffset] = dot(sub(pt, sv.centroid), right)
+		o[qUnderDepth] = zc - under[2]
+		o[qOffset] = dot(pt, right)
 		azd := math.Mod(az*180/math.Pi, 360)
 		if azd < 0 {
 			azd += 360
@@ -1503,6 +1513,7 @@ func derivePair(sp *separable, sv *survey, zref float64, flip []bool, v []float6
 	}
 	az := a[qAzimuth] + dAz/2
 	dip := (a[qDip] + dipJ) / 2
+	// The lines' points about the readings' centroid (deriveQuantities).
 	pi := [3]float64{a[qPointE], a[qPointN], a[qPointU]}
 	pj := [3]float64{b[qPointE], b[qPointN], b[qPointU]}
 	pc := scale(add(pi, pj), 0.5)
@@ -1510,9 +1521,10 @@ func derivePair(sp *separable, sv *survey, zref float64, flip []bool, v []float6
 	right := [3]float64{math.Cos(azr), -math.Sin(azr), 0}
 	s := (ci - cj) / 2
 	d := norm(sub(pi, pj))
-	out[pqPointE], out[pqPointN], out[pqPointU] = pc[0], pc[1], pc[2]
-	out[pqDepth] = zref - pc[2]
-	out[pqOffset] = dot(sub(pc, sv.centroid), right)
+	abs := add(sv.centroid, pc)
+	out[pqPointE], out[pqPointN], out[pqPointU] = abs[0], abs[1], abs[2]
+	out[pqDepth] = (zref - sv.centroid[2]) - pc[2]
+	out[pqOffset] = dot(pc, right)
 	out[pqAzimuth], out[pqDip] = az, dip
 	out[pqMoment] = cmplx.Abs(s) * d
 	if nr == 1 {

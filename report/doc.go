@@ -44,7 +44,9 @@
 //
 // Positions are metres in a local east, north, up frame (Frame), with an
 // optional WGS84 origin. Local positions are converted to WGS84 by
-// ingest.Geodetic.FromENU, through the ellipsoid (NIMA TR8350.2: a = 6378137 m, 1/f = 298.257223563): ENU to
+// ingest.Geodetic.FromLocal (up is the height above the origin's height;
+// east and north are those of the tangent plane on the origin's height),
+// through the ellipsoid (NIMA TR8350.2: a = 6378137 m, 1/f = 298.257223563): ENU to
 // Earth-centred Earth-fixed about the origin, then ECEF to geodetic
 // latitude by fixed-point iteration on
 //

@@ -99,7 +99,7 @@ func TestLocateFrameOriginDelimiter(t *testing.T) {
 	for i := range s.Len() {
 		// NED: x north, y east, z down.
 		fmt.Fprintf(&ned, "%.17g;%.17g;%.17g;%.17g;%.17g;%.17g;%.17g;%s\n", s.Time[i], s.Y[i], s.X[i], -s.Z[i], s.By[i], s.Bx[i], -s.Bz[i], s.Group[i])
-		g := origin.FromENU([3]float64{s.X[i], s.Y[i], s.Z[i]})
+		g := origin.FromLocal([3]float64{s.X[i], s.Y[i], s.Z[i]})
 		fmt.Fprintf(&geo, "%.17g,%.17g,%.17g,%.17g,%.17g,%.17g,%.17g,%s\n", s.Time[i], g.Lat, g.Lon, g.H, s.Bx[i], s.By[i], s.Bz[i], s.Group[i])
 	}
 	nedPath, geoPath := filepath.Join(dir, "ned.txt"), filepath.Join(dir, "geo.csv")

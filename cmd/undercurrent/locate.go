@@ -789,6 +789,10 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		if err := checkPositionsRead(path, s); err != nil {
 			return nil, err
 		}
+		// Positions in mm or cm read as metres (posunits.go).
+		if w := checkPositionSpeed(path, s, o.read.positionUnitGiven()); w != "" {
+			sv.alerts = append(sv.alerts, w)
+		}
 		if o.groupBy != "" && s.Group == nil {
 			return nil, fmt.Errorf("%s has no column %q to group by (see \"undercurrent inspect %s\" for its columns)", path, o.groupBy, path)
 		}

@@ -32,7 +32,7 @@ func TestLocatePositionSources(t *testing.T) {
 	ned.WriteString("time,Easting,Northing,z,bx,by,bz,group\n")
 	uT.WriteString("time,x,y,z,bx,by,bz,group\n")
 	for i := range s.Len() {
-		g := origin.FromENU([3]float64{s.X[i], s.Y[i], s.Z[i]})
+		g := origin.FromLocal([3]float64{s.X[i], s.Y[i], s.Z[i]})
 		e := 561233.7 + s.X[i]*math.Cos(conv) - s.Y[i]*math.Sin(conv)
 		n := 5812343.2 + s.X[i]*math.Sin(conv) + s.Y[i]*math.Cos(conv)
 		fmt.Fprintf(&gnss, "%.17g,%.17g,%.17g,%.17g,%.3f,%.3f,%.17g,%.17g,%.17g,%s\n", s.Time[i], g.Lat, g.Lon, g.H, e, n, s.Bx[i], s.By[i], s.Bz[i], s.Group[i])
