@@ -2056,20 +2056,31 @@ func (f *fitter) noiseFloor() float64 {
 	if n < 5 {
 		return 0
 	}
+	f.floor = diffNoise(f.sv.y, nr, f.scr.take(len(f.sv.y)))
+	return f.floor
+}
+
+// diffNoise is noiseFloor's estimate from the readings y (rows of 3 axes by nr parts,
+// row-major, as survey.y): fourth differences of successive readings for DC (nr 1),
+// second differences for AC, their 1.4826 MAD over their scale for white noise. d is
+// scratch of at least len(y) values. Zero with fewer than 5 readings.
+func diffNoise(y []float64, nr int, d []float64) float64 {
+	st := 3 * nr
+	if len(y) < 5*st {
+		return 0
+	}
 	// Consecutive readings are rows 3*nr apart in y: the differences of all axes and
 	// parts at once are taken about r over the interior readings.
-	y, st := f.sv.y, 3*nr
-	var d []float64
 	scale := math.Sqrt(6.0)
 	if nr == 1 {
-		d = f.scr.take(len(y) - 4*st)
+		d = d[:len(y)-4*st]
 		for i := range d {
 			r := i + 2*st
 			d[i] = y[r-2*st] - 4*y[r-st] + 6*y[r] - 4*y[r+st] + y[r+2*st]
 		}
 		scale = math.Sqrt(70.0)
 	} else {
-		d = f.scr.take(len(y) - 2*st)
+		d = d[:len(y)-2*st]
 		for i := range d {
 			r := i + st
 			d[i] = y[r-st] - 2*y[r] + y[r+st]
@@ -2079,8 +2090,7 @@ func (f *fitter) noiseFloor() float64 {
 	for i, v := range d {
 		d[i] = math.Abs(v - med)
 	}
-	f.floor = 1.4826 * medianInPlace(d) / scale
-	return f.floor
+	return 1.4826 * medianInPlace(d) / scale
 }
 
 // addDipole adds one point dipole to a fit, seeded under the peak of its residual at

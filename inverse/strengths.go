@@ -23,9 +23,14 @@ import (
 // set.Background, which would make the basis singular). Result.Strengths lists them in
 // the order of sources (AC: Result.StrengthPhasors, with StrengthSigmas the one-sigma of
 // each real and imaginary part, equal to that of the magnitude to first order).
-// Result.Sources has one entry per Line (or *Line) source, in order, with the
-// geometry held; other sources (segments, polylines, dipoles) have none. A nil
-// source is refused.
+// Result.Sources has, in the order of the sources and with the geometry held, one
+// entry per Line, one of Kind "line" per Segment and per leg of a Polyline (its line,
+// with a note beginning SegmentAsLineNote), and one of Kind "dipole" per Dipole (the
+// moment fitted, the position held); pointers to them likewise. A nil source is
+// refused. The fit's notes begin with HeldGeometryMissNote when the residual is
+// beyond twice the readings' noise floor, which does not come from the fit
+// (heldMiss): with the noise estimated chi-square per degree of freedom is 1 however
+// wrong the geometry.
 // Only set.Background and set.ReferenceZ are used from the settings. With p.Travel set
 // the sources' fields are averaged along each reading's path (see Problem.Travel).
 func FitStrengths(p *Problem, sources []Source, set *Settings) (*Result, error) {
@@ -120,35 +125,65 @@ func FitStrengths(p *Problem, sources []Source, set *Settings) (*Result, error) 
 	if s.ReferenceZ != nil {
 		r.DepthReference, r.ReferenceZ = "ReferenceZ", *s.ReferenceZ
 	}
-	// Line summaries with geometry held.
+	// Summaries with the geometry held: lines, segments and polylines' legs as
+	// lines, dipoles as dipoles.
 	col := 0
-	for _, src := range sources {
-		// A *Line is a Line too (its methods take the value): before, only
-		// a Line value got its summary, and lines given as pointers were
-		// solved and then left out of Result.Sources without a word.
-		ln, ok := src.(Line)
-		if lp, isPtr := src.(*Line); isPtr {
-			ln, ok = *lp, true
+	addLine := func(ln Line, c int, note string) {
+		e := heldLine(ln, sv, r.ReferenceZ)
+		if note != "" {
+			e.Notes = append(e.Notes, note)
 		}
-		if ok {
-			e := heldLine(ln, sv, r.ReferenceZ)
-			if nr == 1 {
-				e.Current = coef[col]
-			} else {
-				c := complex(coef[col*2], coef[col*2+1])
-				e.Current = math.Hypot(real(c), imag(c))
-				e.Phase = math.Atan2(imag(c), real(c)) * 180 / math.Pi
-				e.Identifiable.Phase = true
+		if nr == 1 {
+			e.Current = coef[c]
+		} else {
+			z := complex(coef[c*2], coef[c*2+1])
+			e.Current = math.Hypot(real(z), imag(z))
+			e.Phase = math.Atan2(imag(z), real(z)) * 180 / math.Pi
+			e.Identifiable.Phase = true
+		}
+		if e.flip {
+			e.Current, e.Phase = flipCurrent(e.Current, e.Phase, nr)
+		}
+		e.CurrentSigma = sig(c)
+		e.PhaseSigma = 0
+		if nr == 2 && e.Current > 0 {
+			e.PhaseSigma = sig(c) / e.Current * 180 / math.Pi
+		}
+		r.Sources = append(r.Sources, e.SourceEstimate)
+	}
+	addSegment := func(a, b [3]float64, c int) {
+		if norm(sub(b, a)) == 0 {
+			return
+		}
+		addLine(Line{Point: a, Dir: sub(b, a)}, c, fmt.Sprintf("%s (%.3g, %.3g, %.3g) to (%.3g, %.3g, %.3g) m: Point and Depth are on its line, which may cross the readings' track beyond the segment's ends", SegmentAsLineNote, a[0], a[1], a[2], b[0], b[1], b[2]))
+	}
+	for _, src := range sources {
+		// A pointer is the value too (its methods take the value): before, only
+		// a Line value got its summary, and lines given as pointers were solved
+		// and then left out of Result.Sources without a word; segments,
+		// polylines and dipoles had none, and report.Build called a group of
+		// them "no conductor was fitted".
+		switch v := src.(type) {
+		case Line:
+			addLine(v, col, "")
+		case *Line:
+			addLine(*v, col, "")
+		case Segment:
+			addSegment(v.A, v.B, col)
+		case *Segment:
+			addSegment(v.A, v.B, col)
+		case Polyline:
+			for k := 1; k < len(v.Vertices); k++ {
+				addSegment(v.Vertices[k-1], v.Vertices[k], col+k-1)
 			}
-			if e.flip {
-				e.Current, e.Phase = flipCurrent(e.Current, e.Phase, nr)
+		case *Polyline:
+			for k := 1; k < len(v.Vertices); k++ {
+				addSegment(v.Vertices[k-1], v.Vertices[k], col+k-1)
 			}
-			e.CurrentSigma = sig(col)
-			e.PhaseSigma = 0
-			if nr == 2 && e.Current > 0 {
-				e.PhaseSigma = sig(col) / e.Current * 180 / math.Pi
-			}
-			r.Sources = append(r.Sources, e.SourceEstimate)
+		case Dipole:
+			r.Sources = append(r.Sources, heldDipole(v.Pos, coef, sig, col, nr, sv, r.ReferenceZ))
+		case *Dipole:
+			r.Sources = append(r.Sources, heldDipole(v.Pos, coef, sig, col, nr, sv, r.ReferenceZ))
 		}
 		col += src.NumStrengths()
 	}
@@ -173,6 +208,9 @@ func FitStrengths(p *Problem, sources []Source, set *Settings) (*Result, error) 
 		}
 	}
 	r.RMS = math.Sqrt(ss / float64(m))
+	if note := heldMiss(p, sv, res, rss, r.DOF); note != "" {
+		r.Notes = append(r.Notes, note)
+	}
 	if r.Sigma == 0 {
 		r.StrengthSigmas = nil
 		r.Notes = append(r.Notes, "no degrees of freedom to estimate the noise and Problem.Sigma is zero: uncertainties are not available")
@@ -181,6 +219,80 @@ func FitStrengths(p *Problem, sources []Source, set *Settings) (*Result, error) 
 		}
 	}
 	return r, nil
+}
+
+// HeldGeometryMissNote begins the note (Result.Notes) of a FitStrengths fit whose held
+// geometry misses the readings by more than heldMissFactor times their noise floor
+// (heldMiss). report takes it as a failed fit.
+const HeldGeometryMissNote = "the geometry held misses the readings"
+
+// heldMissFactor is how many times the readings' noise floor the residual RMS per
+// degree of freedom of a held-geometry fit may reach before heldMiss says so.
+// Fourth differences of white noise alone put the floor within 10% of the noise on
+// 300 values (see fitter.noiseFloor), and a conductor's own curvature can only raise
+// it, so twice the floor is not reached by noise; a site-plan position 0.5 m off a
+// 20 A line 1 m down misses by tens of times the noise.
+const heldMissFactor = 2
+
+// heldMissMinReadings is the fewest readings for heldMiss to estimate the floor from
+// their differences.
+const heldMissMinReadings = 10
+
+// heldMiss returns the note that a held-geometry fit misses its readings (see
+// HeldGeometryMissNote), or "". FitStrengths fits strengths only; with the noise
+// estimated from its residuals (Problem.Sigma zero) its chi-square per degree of
+// freedom is 1 by construction, however far the geometry held lies from the
+// conductors, and a site-plan line 0.5 m off read a wrong current with tight sigmas
+// and no word. So the residual is judged against a noise floor that does not come
+// from the fit: Problem.Sigma when given, else the readings' own differences along
+// the readings (diffNoise: fourth differences for DC, second for AC phasors, as
+// FitLines' noiseFloor), which see the noise and little of a conductor's smooth
+// field. Readings not in order along the walk raise that floor, and the check then
+// says less, never more. res holds the residuals (rows by parts), rss their sum of
+// squares, dof the degrees of freedom.
+func heldMiss(p *Problem, sv *survey, res []float64, rss float64, dof int) string {
+	if dof <= 0 || len(p.Points) < heldMissMinReadings {
+		return ""
+	}
+	floor, from := p.Sigma, "Problem.Sigma"
+	if !(floor > 0) {
+		// res is spent: its room holds the differences.
+		floor = diffNoise(sv.y, sv.nrhs, res)
+		from = "from differences of successive readings"
+	}
+	if !(floor > 0) {
+		return ""
+	}
+	rms := math.Sqrt(rss / float64(dof))
+	if !(rms > heldMissFactor*floor) {
+		return ""
+	}
+	return fmt.Sprintf("%s: the residual, %.3g nT RMS per degree of freedom, is %.3g times the readings' noise floor (%.3g nT, %s), more than the %g that noise allows: a conductor lies elsewhere than the geometry given, or one is missing from it; the strengths and their sigmas hold only for the geometry given, not for the conductors",
+		HeldGeometryMissNote, rms, rms/floor, floor, from, float64(heldMissFactor))
+}
+
+// SegmentAsLineNote begins the note (SourceEstimate.Notes) of a segment, or a
+// polyline's leg, held in FitStrengths: it is summarised as its line.
+const SegmentAsLineNote = "a segment held, summarised as its line: it runs from"
+
+// heldDipole summarises a dipole held at pos in FitStrengths, its moment from the
+// strengths from column c (coef, sig; nr parts), in the reporting conventions of
+// FitLines: AC moments are each axis's magnitude.
+func heldDipole(pos [3]float64, coef []float64, sig func(int) float64, c, nr int, sv *survey, zref float64) SourceEstimate {
+	e := SourceEstimate{Kind: "dipole", Point: pos,
+		Depth:  zref - pos[2],
+		Offset: pos[0] - sv.centroid[0],
+		Notes:  []string{"point dipole: a magnetised (ferrous) object, not a current; position held: only the moment was fitted"},
+	}
+	for k := range 3 {
+		if nr == 1 {
+			e.Moment[k] = coef[c+k]
+		} else {
+			e.Moment[k] = math.Hypot(coef[(c+k)*2], coef[(c+k)*2+1])
+		}
+		e.MomentSigma[k] = sig(c + k)
+	}
+	return e
 }
 
 type heldEstimate struct {

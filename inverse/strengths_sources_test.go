@@ -29,8 +29,10 @@ func TestFitStrengthsLinePointerAndNil(t *testing.T) {
 		t.Fatal(err)
 	}
 	for name, r := range map[string]*Result{"Line": byValue, "*Line": byPointer} {
-		if len(r.Sources) != 1 {
-			t.Errorf("%s: %d sources, want 1", name, len(r.Sources))
+		// The line first; the dipole held beside the pointer has an entry
+		// of its own since FitStrengths summarises dipoles too.
+		if len(r.Sources) == 0 || r.Sources[0].Kind != "line" || len(r.Sources) > 1 && (name == "Line" || r.Sources[1].Kind != "dipole") {
+			t.Errorf("%s: %d sources, want the line (and the dipole held with the pointer)", name, len(r.Sources))
 			continue
 		}
 		e := r.Sources[0]

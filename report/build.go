@@ -23,9 +23,8 @@ type Fit struct {
 	Problem *inverse.Problem
 	// Result is the fit (inverse.FitLines or FitStrengths); nil when the
 	// fit failed, with the reason in Err. Build reports the sources in
-	// Result.Sources: from FitStrengths only its Line sources have one, and a
-	// group whose sources are all segments, polylines or dipoles is reported
-	// as "no conductor was fitted".
+	// Result.Sources: from FitStrengths its lines, its segments and
+	// polylines' legs (each as its line) and its dipoles.
 	Result *inverse.Result
 	Err    error
 	// Dipole is true when the caller found the readings better explained

@@ -508,7 +508,19 @@ func objectField(f *Fit, o *route.Object, key string) bool {
 		return false
 	}
 	out := *rj
-	out.Notes = append(append([]string(nil), rj.Notes...), fmt.Sprintf(
+	// The object is reported on its own (see above): its held dipole's
+	// entry is not one of the group's sources.
+	out.Sources = rj.Sources[:len(srcs)]
+	// The joint refit holds the line the fit found, not a geometry the
+	// caller gave: FitStrengths' note that a held geometry misses the
+	// readings (inverse.HeldGeometryMissNote) is not about the survey.
+	var kept []string
+	for _, n := range rj.Notes {
+		if !strings.HasPrefix(n, inverse.HeldGeometryMissNote) {
+			kept = append(kept, n)
+		}
+	}
+	out.Notes = append(kept, fmt.Sprintf(
 		"the readings are the field of the magnetised object found alone at %s (a point dipole at east %.2f m, north %.2f m): the information criterion is lower by %.0f with it than with the line fitted, and with it the line carries no current",
 		key, o.Point[0], o.Point[1], bic(p, res)-bic(p, rd)))
 	f.Result = &out

@@ -985,7 +985,7 @@ func demodulateACLeftOut(o *locateOptions, s *ingest.Samples, leftOut []float64)
 	if err != nil {
 		// The fixed-frequency demodulation went through; a failed check is
 		// worth a warning, not the run.
-		return res, win, append(res.Warnings, fmt.Sprintf("the AC frequency could not be checked (%v): the results assume the field runs at exactly %g Hz", err, o.freq)), freqHints{}, nil
+		return res, win, append(res.Warnings, fmt.Sprintf("the AC frequency could not be checked (%v): the results assume the field runs at exactly %g Hz", err, o.freq)), uncheckedHints(s, o), nil
 	}
 	est, ok := estimateWindowFreq(fit.Windows, win)
 	if !ok {
@@ -993,7 +993,7 @@ func demodulateACLeftOut(o *locateOptions, s *ingest.Samples, leftOut []float64)
 		if fit.FreqFailed > 0 {
 			w += fmt.Sprintf(" (the frequency fits of %d more windows failed, as where the field runs far from %g Hz: check --freq)", fit.FreqFailed, o.freq)
 		}
-		return res, win, append(res.Warnings, w), freqHints{}, nil
+		return res, win, append(res.Warnings, w), uncheckedHints(s, o), nil
 	}
 	var failedShare string
 	if n := len(fit.Windows) + fit.FreqFailed; fit.FreqFailed > 0 && freqFailedShare*float64(n) < float64(fit.FreqFailed) {
@@ -1148,6 +1148,21 @@ type freqHints struct {
 	// group, s, and the turn the estimate allows across it, degrees.
 	est                 freqEstimate
 	freq, span, allowed float64
+	// unchecked is set when the frequency check could not decide; lines
+	// are then the spectral lines in the log other than the mains and the
+	// frequency given (otherLines), for the warning should no group find
+	// a current (wrongFreqWarning).
+	unchecked bool
+	lines     []spectralLine
+	atFreq    bool
+}
+
+// uncheckedHints are the hints of a log s whose frequency check could not
+// decide (freqHints.unchecked).
+func uncheckedHints(s *ingest.Samples, o *locateOptions) freqHints {
+	h := freqHints{unchecked: true}
+	h.lines, h.atFreq = otherLines(s, o.freq, o.mains)
+	return h
 }
 
 // of returns the offset where group g's ramp search starts, Hz (0 for

@@ -536,6 +536,9 @@ type looseLog struct {
 
 type survey struct {
 	looseLogs []looseLog
+	// unchecked holds the AC logs whose frequency check could not decide
+	// (wrongfreq.go).
+	unchecked []uncheckedLog
 	doc       *report.Document
 	groups    []*group
 	ac        bool
@@ -1734,6 +1737,9 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 	if err != nil {
 		return noWindowAdvice(err, o)
 	}
+	if hints.unchecked {
+		sv.unchecked = append(sv.unchecked, uncheckedLog{source: s.Source, lines: hints.lines, atFreq: hints.atFreq})
+	}
 	if hints.loose {
 		sv.looseLogs = append(sv.looseLogs, looseLog{source: s.Source, hints: hints})
 	}
@@ -2044,6 +2050,9 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 		if w := looseFreqWarning(l.hints, gs); w != "" {
 			head.Warnings = append(head.Warnings, l.source+": "+w)
 		}
+	}
+	if w := wrongFreqWarning(sv, o.freq); w != "" {
+		head.Warnings = append(head.Warnings, w)
 	}
 	fits := make([]report.Fit, len(sv.groups))
 	for i, g := range sv.groups {
