@@ -91,7 +91,8 @@ func (c *command) printHelp(w io.Writer, fs *pflag.FlagSet) {
 
 // interruptHelp says what Ctrl-C does (serve documents its own draining).
 const interruptHelp = `Ctrl-C (SIGINT) or SIGTERM stops the command at the next stage (between
-batches while reading); it prints "interrupted", writes no output (files
+batches while reading, or at once while a read waits on an idle input
+pipe); it prints "interrupted", writes no output (files
 and directories appear whole or not at all) and exits with status 130
 (SIGINT) or 143 (SIGTERM).` + "\n" + tempHelp
 
