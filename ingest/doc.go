@@ -155,5 +155,9 @@
 // Samples.Warnings after Collect or ReadSamples, and Inspection.Warnings.
 //
 // Output files are written through WriteFileAtomic: a temporary file in the
-// same directory renamed into place, so a failed write leaves nothing behind.
+// same directory, synced to the disk and renamed into place, the directory
+// synced after, so a failed write leaves nothing behind and a power cut
+// leaves the old file or the whole new one. WriteReaderTo writes a log to
+// an io.Writer, for a caller that stages and places the file itself.
+// WithContext also cuts short a read waiting on an idle pipe.
 package ingest

@@ -3,10 +3,12 @@ package ingest
 import (
 	"bufio"
 	"bytes"
+	"context"
 	"errors"
 	"io"
 	"os"
 	"path/filepath"
+	"time"
 
 	"github.com/apache/arrow-go/v18/arrow"
 )
@@ -113,10 +115,28 @@ func Open(path string, opts ...Option) (Reader, error) {
 	return open(path, cfg)
 }
 
-func open(path string, cfg *config) (Reader, error) {
+func open(path string, cfg *config) (r Reader, err error) {
 	f, err := os.Open(path)
 	if err != nil {
 		return nil, fileErr(path, unwrapPath(err), "cannot open")
+	}
+	// A read from a pipe waits for its writer: one alive but idle (a
+	// logger's FIFO, ssh ... tail -f |) would hold a read, and a command
+	// told to stop, until data or the end came. Once ctx is done, the
+	// file's read deadline is set to now, so that a read waiting (and
+	// every later one) returns at once and the reader stops with the
+	// context's error (ctxReader). A regular file's reads do not wait.
+	stop := func() bool { return false }
+	if cfg.ctx != nil {
+		stop = context.AfterFunc(cfg.ctx, func() { f.SetReadDeadline(time.Now()) })
+		defer func() {
+			if err != nil {
+				stop()
+				if cerr := cfg.ctx.Err(); cerr != nil {
+					err = &Error{File: path, Batch: -1, Msg: "read stopped", Err: cerr}
+				}
+			}
+		}()
 	}
 	// The format is told from the first bytes, peeked through a buffer,
 	// not read and sought back, so that a pipe (a named pipe, /dev/stdin)
@@ -158,7 +178,6 @@ func open(path string, cfg *config) (Reader, error) {
 		}
 		return nil, fileErr(path, nil, "%s is read from its footer, at its end, so it must be a regular file, not a pipe; save it to a file first, or pipe it as an Arrow IPC stream (.arrows) or CSV (undercurrent convert writes both)", what)
 	}
-	var r Reader
 	switch format {
 	case FormatArrowFile:
 		r, err = newArrowFileReader(path, f, cfg)
@@ -179,7 +198,7 @@ func open(path string, cfg *config) (Reader, error) {
 		r = &progressReader{Reader: r, fn: cfg.progress}
 	}
 	if cfg.ctx != nil {
-		r = &ctxReader{Reader: r, ctx: cfg.ctx, name: path}
+		r = &ctxReader{Reader: r, ctx: cfg.ctx, name: path, stop: stop}
 	}
 	return r, nil
 }

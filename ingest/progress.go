@@ -24,23 +24,37 @@ func (r *progressReader) Next() bool {
 func (r *progressReader) plan() *plan { return planOf(r.Reader) }
 
 // ctxReader stops the reader it wraps between batches once ctx is done
-// (WithContext).
+// (WithContext); a read waiting on a pipe is cut short by the file's read
+// deadline (open), and the error that gives is reported as the stop.
 type ctxReader struct {
 	Reader
 	ctx  context.Context
 	name string
 	err  error
+	stop func() bool // ends open's watch of ctx
 }
 
 func (r *ctxReader) Next() bool {
 	if r.err != nil {
 		return false
 	}
-	if err := r.ctx.Err(); err != nil {
-		r.err = &Error{File: r.name, Batch: -1, Msg: "read stopped", Err: err}
+	if r.stopped() {
 		return false
 	}
-	return r.Reader.Next()
+	if r.Reader.Next() {
+		return true
+	}
+	r.stopped() // a read cut short when ctx ended
+	return false
+}
+
+// stopped records, once ctx is done, the error Next and Err report.
+func (r *ctxReader) stopped() bool {
+	if err := r.ctx.Err(); err != nil {
+		r.err = &Error{File: r.name, Batch: -1, Msg: "read stopped", Err: err}
+		return true
+	}
+	return false
 }
 
 func (r *ctxReader) Err() error {
@@ -48,6 +62,14 @@ func (r *ctxReader) Err() error {
 		return r.err
 	}
 	return r.Reader.Err()
+}
+
+// Release ends the watch of ctx and releases the wrapped reader.
+func (r *ctxReader) Release() {
+	if r.stop != nil {
+		r.stop()
+	}
+	r.Reader.Release()
 }
 
 // plan forwards to the wrapped reader, so that planOf sees through the

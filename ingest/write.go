@@ -20,7 +20,12 @@ import (
 
 // WriteFileAtomic writes via a temporary file in the same directory and
 // renames it into place; on any error nothing is left at path (an existing
-// file there is kept unchanged). The file gets mode 0644.
+// file there is kept unchanged). The file gets mode 0644. The file's data
+// are forced to the disk (fsync) before the rename, and the directory's
+// entry after it (SyncDir), so that after a power cut or an operating
+// system crash path holds the old file or the whole new one: without the
+// first, a file system that allocates blocks late (ext4, XFS) can show
+// the new name with no data or part of it.
 func WriteFileAtomic(path string, write func(w io.Writer) error) (err error) {
 	dir, base := filepath.Split(path)
 	if dir == "" {
@@ -46,13 +51,41 @@ func WriteFileAtomic(path string, write func(w io.Writer) error) (err error) {
 	if err = tmp.Chmod(0o644); err != nil {
 		return fmt.Errorf("ingest: %s: %w", path, err)
 	}
+	if err = syncFile(tmp); err != nil {
+		return fmt.Errorf("ingest: %s: %w", path, unwrapPath(err))
+	}
 	if err = tmp.Close(); err != nil {
 		return fmt.Errorf("ingest: %s: %w", path, err)
 	}
 	if err = os.Rename(tmp.Name(), path); err != nil {
 		return fmt.Errorf("ingest: %s: %w", path, unwrapPath(err))
 	}
+	syncDir(dir)
 	return nil
+}
+
+// syncFile and syncDir are how WriteFileAtomic syncs (tests watch them).
+var (
+	syncFile = (*os.File).Sync
+	syncDir  = SyncDir
+)
+
+// SyncDir forces a directory's entries (a file renamed or linked into it,
+// a directory made or renamed in it) to the disk, so that they survive a
+// power cut. It is best effort: the error of a file system that cannot
+// sync a directory (some network and FUSE file systems refuse) is
+// returned for callers that want it, and what was renamed is in place
+// either way.
+func SyncDir(dir string) error {
+	d, err := os.Open(dir)
+	if err != nil {
+		return err
+	}
+	err = d.Sync()
+	if cerr := d.Close(); err == nil {
+		err = cerr
+	}
+	return err
 }
 
 // WriteSamples writes s to path in the format given by the extension
@@ -76,26 +109,34 @@ func WriteReader(path string, r Reader) error {
 	if err != nil {
 		return err
 	}
-	return WriteFileAtomic(path, func(w io.Writer) error {
-		var err error
-		switch format {
-		case FormatCSV:
-			err = writeCSV(w, r)
-		case FormatArrowFile:
-			err = writeIPC(w, r, true)
-		case FormatArrowStream:
-			err = writeIPC(w, r, false)
-		case FormatParquet:
-			err = writeParquet(w, r)
+	return WriteFileAtomic(path, func(w io.Writer) error { return WriteReaderTo(w, path, format, r) })
+}
+
+// WriteReaderTo streams the rest of r to w in format (FormatCSV,
+// FormatArrowFile, FormatArrowStream or FormatParquet), for a caller that
+// makes and places the file itself; name names it in errors. It does not
+// release r.
+func WriteReaderTo(w io.Writer, name string, format Format, r Reader) error {
+	var err error
+	switch format {
+	case FormatCSV:
+		err = writeCSV(w, r)
+	case FormatArrowFile:
+		err = writeIPC(w, r, true)
+	case FormatArrowStream:
+		err = writeIPC(w, r, false)
+	case FormatParquet:
+		err = writeParquet(w, r)
+	default:
+		return fmt.Errorf("ingest: %s: cannot write the %s format", name, format)
+	}
+	if err != nil {
+		if _, ok := err.(*Error); ok || strings.HasPrefix(err.Error(), "ingest:") {
+			return err
 		}
-		if err != nil {
-			if _, ok := err.(*Error); ok || strings.HasPrefix(err.Error(), "ingest:") {
-				return err
-			}
-			return fmt.Errorf("ingest: %s: %w", path, err)
-		}
-		return nil
-	})
+		return fmt.Errorf("ingest: %s: %w", name, err)
+	}
+	return nil
 }
 
 func writeIPC(w io.Writer, r Reader, file bool) error {

@@ -91,7 +91,8 @@ func (c *command) printHelp(w io.Writer, fs *pflag.FlagSet) {
 
 // interruptHelp says what Ctrl-C does (serve documents its own draining).
 const interruptHelp = `Ctrl-C (SIGINT) or SIGTERM stops the command at the next stage (between
-batches while reading); it prints "interrupted", writes no output (files
+batches while reading, or at once while a read waits on an idle input
+pipe); it prints "interrupted", writes no output (files
 and directories appear whole or not at all) and exits with status 130
 (SIGINT) or 143 (SIGTERM).` + "\n" + tempHelp
 
@@ -103,11 +104,12 @@ all) and exits with status 130 (SIGINT) or 143 (SIGTERM).` + "\n" + tempHelp
 // replayInterruptHelp is interruptHelp for replay, whose output is broker
 // messages: those sent before the interrupt are not withdrawn.
 const replayInterruptHelp = `Ctrl-C (SIGINT) or SIGTERM stops the replay between batches; it prints
-"interrupted" and exits with status 130 (SIGINT) or 143 (SIGTERM). The
-batches sent before the interrupt stay in the broker and are processed:
-run the same replay again within two minutes to send the rest (the broker
-drops the repeated batches); run later, the repeats are stored again and
-the pipeline refuses them as late.`
+"interrupted", how many batches were stored and up to which time, and
+exits with status 130 (SIGINT) or 143 (SIGTERM). The batches sent before
+the interrupt stay in the broker and are processed: run the same replay
+again with --resume to send the rest (without it, the broker drops the
+repeated batches only within two minutes; later the repeats are stored
+again and the pipeline refuses them as late).`
 
 // brokerExitHelp is exitHelp for serve and replay, which write no files.
 const brokerExitHelp = `Exit status: 0 on success; 1 on failure (a site file or log that cannot be
@@ -236,7 +238,12 @@ func runCommand(ctx context.Context, args []string, stdout, stderr io.Writer) in
 	}
 	if err := c.run(ctx, fs, fs.Args(), stdout, stderr); err != nil {
 		if ctx.Err() != nil && isInterrupt(err) {
-			fmt.Fprintf(stderr, "undercurrent %s: interrupted\n", name)
+			var ni *notedInterrupt
+			if errors.As(err, &ni) {
+				fmt.Fprintf(stderr, "undercurrent %s: interrupted: %s\n", name, ni.note)
+			} else {
+				fmt.Fprintf(stderr, "undercurrent %s: interrupted\n", name)
+			}
 			return interruptStatus(ctx)
 		}
 		msg := readErrorWording(err, inputPaths(name, fs, fs.Args()))
@@ -337,6 +344,16 @@ func withWarnings(err error, warnings ...[]string) error {
 	}
 	return &warnedError{err: err, warnings: all}
 }
+
+// notedInterrupt is an interruption with a note of what was done before
+// it (replay: the batches stored), printed after "interrupted".
+type notedInterrupt struct {
+	err  error
+	note string
+}
+
+func (e *notedInterrupt) Error() string { return e.err.Error() + ": " + e.note }
+func (e *notedInterrupt) Unwrap() error { return e.err }
 
 // signalCause is why the context ended when a signal arrived (see main).
 type signalCause struct{ sig os.Signal }

@@ -110,7 +110,10 @@ Examples:
 				return nil
 			}
 			progress, done := rowProgress(stderr, "converting")
-			opts = append(opts, ingest.WithAllowMissing(!strict), progress)
+			// WithContext: a read waiting on an idle pipe gives way
+			// to Ctrl-C or SIGTERM (the reader stops with the
+			// context's error and the output is not written).
+			opts = append(opts, ingest.WithAllowMissing(!strict), progress, ingest.WithContext(ctx))
 			r, err := await(ctx, func() (ingest.Reader, error) { return ingest.Open(in, opts...) })
 			if err != nil {
 				done()

@@ -418,7 +418,9 @@ func readSamples(ctx context.Context, path string, opts ...ingest.Option) (*inge
 	if err := ctx.Err(); err != nil {
 		return nil, err
 	}
-	// Open reads the whole log first for --origin mean.
+	// Open reads the whole log first for --origin mean. WithContext: a
+	// read waiting on an idle pipe gives way to Ctrl-C or SIGTERM.
+	opts = append(opts[:len(opts):len(opts)], ingest.WithContext(ctx))
 	r, err := await(ctx, func() (ingest.Reader, error) { return ingest.Open(path, opts...) })
 	if err != nil {
 		return nil, err

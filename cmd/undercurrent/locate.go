@@ -2677,7 +2677,13 @@ func stageDir(ctx context.Context, dir string, keep []string, fill func(tmp stri
 		return err
 	}
 	if _, err := os.Lstat(dir); errors.Is(err, os.ErrNotExist) {
-		return os.Rename(tmp, dir)
+		if err := os.Rename(tmp, dir); err != nil {
+			return err
+		}
+		// Each file was synced as it was written (WriteFileAtomic);
+		// the rename survives a power cut once the parent is.
+		syncDir(parent)
+		return nil
 	}
 	// Replace an earlier result: move it aside, move the new one in, and
 	// only then delete the old one.
@@ -2698,6 +2704,7 @@ func stageDir(ctx context.Context, dir string, keep []string, fill func(tmp stri
 		}
 		return err
 	}
+	syncDir(parent)
 	return os.RemoveAll(old)
 }
 

@@ -1,9 +1,11 @@
 package main
 
 import (
+	"bufio"
 	"encoding/json"
 	"errors"
 	"fmt"
+	"io"
 	"os"
 	"path/filepath"
 	"strings"
@@ -74,28 +76,60 @@ func stageLog(path string, r ingest.Reader) (string, error) {
 	if !ok {
 		return "", checkLogExt(path)
 	}
-	return stageFile(path, canon, func(tmp string) error { return ingest.WriteReader(tmp, r) })
+	format, err := ingest.FormatFromExt(canon)
+	if err != nil {
+		return "", err
+	}
+	return stageFile(path, canon, func(w io.Writer) error { return ingest.WriteReaderTo(w, path, format, r) })
 }
 
 // stageFile makes a temporary file beside path, named to end in ext,
-// fills it with write (which may replace it whole, as ingest's atomic
-// writers do) and returns its name. On an error nothing is left.
+// fills it with write, forces it to the disk and returns its name. On an
+// error nothing is left.
+//
+// The file is written once, under this one name: before, a log was
+// written by ingest's atomic writer into a second temporary file named
+// after the first (..NAME.tmpDIGITS.EXT.tmpDIGITS), which a run killed
+// outright left behind where removeStaleTemps did not look for it. The
+// data are synced (fsync) before the file is declared written, so that
+// the rename that follows (placeFile) cannot put a name on a file a power
+// cut would leave empty or short.
 //
 // An error that names the temporary file (a full disk, a directory made
 // read-only meanwhile) is reported as "PATH: cannot write: REASON", with
 // the output's own name: the temporary name is not one the user gave.
-func stageFile(path, ext string, write func(tmp string) error) (string, error) {
+func stageFile(path, ext string, write func(w io.Writer) error) (string, error) {
 	f, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".tmp*"+ext)
 	if err != nil {
 		return "", writeError(path, "", err)
 	}
 	tmp := f.Name()
-	f.Close()
-	if err := write(tmp); err != nil {
+	if err := fillFile(f, write); err != nil {
+		f.Close()
 		os.Remove(tmp)
 		return "", writeError(path, tmp, err)
 	}
 	return tmp, nil
+}
+
+// fillFile writes f through a buffer with write, gives it mode 0644 (as
+// ingest.WriteFileAtomic does: os.CreateTemp makes files only the owner
+// can read), syncs it to the disk and closes it.
+func fillFile(f *os.File, write func(w io.Writer) error) error {
+	bw := bufio.NewWriterSize(f, 1<<20)
+	if err := write(bw); err != nil {
+		return err
+	}
+	if err := bw.Flush(); err != nil {
+		return err
+	}
+	if err := f.Chmod(0o644); err != nil {
+		return err
+	}
+	if err := syncFile(f); err != nil {
+		return err
+	}
+	return f.Close()
 }
 
 // writeError words a failed write of the output path (staged under the
@@ -142,6 +176,24 @@ func (e *renamedError) Unwrap() error { return e.err }
 // is looked up just before the rename); an empty file is replaced, as
 // checkNewFile allows. tmp is gone afterwards either way.
 func placeFile(tmp, path string, replace bool) error {
+	err := linkOrRename(tmp, path, replace)
+	if err == nil {
+		// The new name survives a power cut only once the directory
+		// is synced (the file's data were, by stageFile).
+		syncDir(filepath.Dir(path))
+	}
+	return err
+}
+
+// syncFile and syncDir are how outputs are synced to the disk (tests
+// watch them).
+var (
+	syncFile = (*os.File).Sync
+	syncDir  = ingest.SyncDir
+)
+
+// linkOrRename is placeFile's move of tmp to path, without the sync.
+func linkOrRename(tmp, path string, replace bool) error {
 	defer os.Remove(tmp)
 	if replace {
 		return os.Rename(tmp, path)
@@ -431,6 +483,7 @@ func makeParents(dir string) (undo func(), err error) {
 			undo()
 			return func() {}, err
 		}
+		syncDir(filepath.Dir(missing[i])) // a power cut keeps it
 		made = append(made, missing[i])
 	}
 	return undo, nil

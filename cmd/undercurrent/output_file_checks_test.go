@@ -1,6 +1,7 @@
 package main
 
 import (
+	"io"
 	"os"
 	"path/filepath"
 	"strings"
@@ -68,7 +69,7 @@ func TestOutFileUnwritableDirIsUsageError(t *testing.T) {
 func TestStageFileNamesTheOutput(t *testing.T) {
 	ro := unwritableDir(t)
 	path := filepath.Join(ro, "x.csv")
-	_, err := stageFile(path, ".csv", func(string) error { return nil })
+	_, err := stageFile(path, ".csv", func(io.Writer) error { return nil })
 	if err == nil {
 		t.Fatalf("staging in %s succeeded", ro)
 	}
@@ -79,8 +80,12 @@ func TestStageFileNamesTheOutput(t *testing.T) {
 	// the same way.
 	dir := t.TempDir()
 	out := filepath.Join(dir, "y.csv")
-	_, err = stageFile(out, ".csv", func(tmp string) error {
-		return &os.PathError{Op: "write", Path: tmp, Err: os.ErrPermission}
+	_, err = stageFile(out, ".csv", func(io.Writer) error {
+		tmp, _ := filepath.Glob(filepath.Join(dir, ".y.csv.tmp*"))
+		if len(tmp) != 1 {
+			t.Fatalf("staging files %q, want one", tmp)
+		}
+		return &os.PathError{Op: "write", Path: tmp[0], Err: os.ErrPermission}
 	})
 	if err == nil || err.Error() != out+": cannot write: "+os.ErrPermission.Error() {
 		t.Errorf("a failed write: %v; want %q", err, out+": cannot write: "+os.ErrPermission.Error())

@@ -2,6 +2,7 @@ package main
 
 import (
 	"bytes"
+	"io"
 	"os"
 	"path/filepath"
 	"strings"
@@ -172,7 +173,7 @@ func TestPlaceFileNeverReplaces(t *testing.T) {
 	var st staged
 	for _, p := range []string{first, second} {
 		if err := st.add(p, func() (string, error) {
-			return stageFile(p, ".csv", func(tmp string) error { return os.WriteFile(tmp, []byte("x\n"), 0o644) })
+			return stageFile(p, ".csv", func(w io.Writer) error { _, err := io.WriteString(w, "x\n"); return err })
 		}); err != nil {
 			t.Fatal(err)
 		}
@@ -190,7 +191,7 @@ func TestPlaceFileNeverReplaces(t *testing.T) {
 	st = staged{}
 	for _, p := range []string{first, second} {
 		if err := st.add(p, func() (string, error) {
-			return stageFile(p, ".csv", func(tmp string) error { return os.WriteFile(tmp, []byte("x\n"), 0o644) })
+			return stageFile(p, ".csv", func(w io.Writer) error { _, err := io.WriteString(w, "x\n"); return err })
 		}); err != nil {
 			t.Fatal(err)
 		}

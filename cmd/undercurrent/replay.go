@@ -177,6 +177,12 @@ func runReplay(ctx context.Context, o *replayOptions, fs *pflag.FlagSet, args []
 		return err
 	}
 	st, err := broker.Replay(ctx, js, batches, set)
+	var stopped *broker.StoppedError
+	if errors.As(err, &stopped) {
+		// Interrupted: say what is stored and how to send the rest, as
+		// for a broker that stopped answering.
+		return &notedInterrupt{err: err, note: stopped.Stored + "; to send the rest, run the same replay again with --resume, which skips each sensor's batches up to the last sample the broker holds for it"}
+	}
 	if err != nil {
 		return err
 	}

@@ -200,6 +200,10 @@ func growStore(ctx context.Context, srv *broker.Server, log *slog.Logger) {
 // embeddedConfig turns the site's [broker] table into the embedded server's settings.
 func embeddedConfig(site *live.Site, dir string) (broker.ServerConfig, error) {
 	cfg := broker.ServerConfig{StoreDir: dir, Name: "undercurrent", Token: site.Broker.Token, MaxStore: site.Broker.StoreMaxBytes}
+	var err error
+	if cfg.SyncAlways, cfg.SyncInterval, err = site.Broker.SyncSetting(); err != nil {
+		return cfg, err
+	}
 	host, port, err := splitAddr(site.Broker.Listen, "broker.listen")
 	if err != nil {
 		return cfg, err

@@ -133,7 +133,7 @@ Examples:
 			}
 			if truthOut != "" {
 				if err := st.add(truthOut, func() (string, error) {
-					return stageFile(truthOut, "", func(tmp string) error { return writeTruth(tmp, sc) })
+					return stageFile(truthOut, "", func(w io.Writer) error { return writeTruth(w, sc) })
 				}); err != nil {
 					return err
 				}
@@ -233,18 +233,16 @@ func plain(v float64) string {
 	return strconv.FormatFloat(v, 'g', 3, 64)
 }
 
-// writeTruth writes the scenario's crossings as CSV: what locate should
-// find under each survey line.
-func writeTruth(path string, sc *simulate.Scenario) error {
-	return ingest.WriteFileAtomic(path, func(w io.Writer) error {
-		bw := bufio.NewWriter(w)
-		fmt.Fprintln(bw, "line,conductor,name,east_m,north_m,up_m,depth_m,dir_east,dir_north,dir_up,current_a,frequency_hz,phase_deg,along_m")
-		for _, c := range sc.Crossings() {
-			name := strings.NewReplacer(",", " ", "\n", " ", "\"", "'").Replace(sc.Conductors[c.Conductor].Name)
-			fmt.Fprintf(bw, "%s,%d,%s,%.4f,%.4f,%.4f,%.4f,%.6f,%.6f,%.6f,%g,%g,%g,%.4f\n",
-				c.Line, c.Conductor+1, name, c.Point[0], c.Point[1], c.Point[2], c.Depth,
-				c.Dir[0], c.Dir[1], c.Dir[2], c.Current, c.Frequency, c.Phase, c.Along)
-		}
-		return bw.Flush()
-	})
+// writeTruth writes the scenario's crossings to w as CSV: what locate
+// should find under each survey line.
+func writeTruth(w io.Writer, sc *simulate.Scenario) error {
+	bw := bufio.NewWriter(w)
+	fmt.Fprintln(bw, "line,conductor,name,east_m,north_m,up_m,depth_m,dir_east,dir_north,dir_up,current_a,frequency_hz,phase_deg,along_m")
+	for _, c := range sc.Crossings() {
+		name := strings.NewReplacer(",", " ", "\n", " ", "\"", "'").Replace(sc.Conductors[c.Conductor].Name)
+		fmt.Fprintf(bw, "%s,%d,%s,%.4f,%.4f,%.4f,%.4f,%.6f,%.6f,%.6f,%g,%g,%g,%.4f\n",
+			c.Line, c.Conductor+1, name, c.Point[0], c.Point[1], c.Point[2], c.Depth,
+			c.Dir[0], c.Dir[1], c.Dir[2], c.Current, c.Frequency, c.Phase, c.Along)
+	}
+	return bw.Flush()
 }

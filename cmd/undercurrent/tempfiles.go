@@ -14,6 +14,15 @@ import (
 //	.NAME.tmp-DIGITS       a result directory being filled (stageDir)
 //	.NAME.old-DIGITS       an earlier result directory being replaced
 //
+// Earlier versions wrote a log (simulate, convert) and simulate's truth
+// table twice over, ingest's atomic writer staging into a second
+// temporary file named after the first:
+//
+//	..NAME.tmpDIGITS[.EXT].tmpDIGITS
+//
+// A run of theirs killed outright left that file, often most of the
+// log's size, and nothing removed it; these are removed too.
+//
 // A run that fails or is interrupted (Ctrl-C, SIGTERM) removes its own;
 // one killed outright (kill -9, a power cut) cannot. The next run asked to
 // write NAME removes those of NAME that are stale: untouched for
@@ -23,8 +32,13 @@ import (
 // never taken.
 const staleTempAge = time.Hour
 
-// tempSuffix matches what follows ".NAME" in a temporary name.
-var tempSuffix = regexp.MustCompile(`^\.(tmp[0-9]+(\.[A-Za-z0-9]+)?|tmp-[0-9]+|old-[0-9]+)$`)
+// tempSuffix matches what follows ".NAME" in a temporary name, and
+// doubleSuffix what follows "..NAME" in the doubly staged name of earlier
+// versions.
+var (
+	tempSuffix   = regexp.MustCompile(`^\.(tmp[0-9]+(\.[A-Za-z0-9]+)?|tmp-[0-9]+|old-[0-9]+)$`)
+	doubleSuffix = regexp.MustCompile(`^\.tmp[0-9]+(\.[A-Za-z0-9]+)?\.tmp[0-9]+$`)
+)
 
 // staleTemps returns the temporary files and directories of the output
 // path that are older than age at now.
@@ -35,11 +49,10 @@ func staleTemps(path string, age time.Duration, now time.Time) []string {
 	if err != nil {
 		return nil
 	}
-	prefix := "." + base
 	var stale []string
 	for _, e := range entries {
 		n := e.Name()
-		if len(n) <= len(prefix) || n[:len(prefix)] != prefix || !tempSuffix.MatchString(n[len(prefix):]) {
+		if !hasTempSuffix(n, "."+base, tempSuffix) && !hasTempSuffix(n, ".."+base, doubleSuffix) {
 			continue
 		}
 		p := filepath.Join(dir, n)
@@ -49,6 +62,12 @@ func staleTemps(path string, age time.Duration, now time.Time) []string {
 		stale = append(stale, p)
 	}
 	return stale
+}
+
+// hasTempSuffix reports whether the name n is prefix followed by what
+// suffix matches.
+func hasTempSuffix(n, prefix string, suffix *regexp.Regexp) bool {
+	return len(n) > len(prefix) && n[:len(prefix)] == prefix && suffix.MatchString(n[len(prefix):])
 }
 
 // newest returns the latest modification time of p and, for a directory,

@@ -178,17 +178,45 @@ type ReplayStats struct {
 	From, To float64 // first and last sample time sent, s
 }
 
+// StoppedError is Replay's error when its context ends (Ctrl-C): it
+// unwraps to the context's error and says what was stored before, so
+// that the rest can be sent with Resume.
+type StoppedError struct {
+	Err    error  // the context's error
+	Stored string // what was stored (ReplayStats.StoredText)
+}
+
+func (e *StoppedError) Error() string { return e.Err.Error() + ": " + e.Stored }
+func (e *StoppedError) Unwrap() error { return e.Err }
+
+// StoredText says how many of the total batches to send the broker
+// acknowledged as stored, and up to which time: "N of M batches were
+// stored, up to time T", or "no batch was stored".
+func (st *ReplayStats) StoredText(total int) string {
+	if st.Batches == 0 {
+		return "no batch was stored"
+	}
+	return fmt.Sprintf("%d of %d batches were stored, up to time %s", st.Batches, total, timeText(st.To))
+}
+
 // Replay publishes batches through JetStream as live sensor messages,
-// paced by set.Speed, waiting for each acknowledgement.
-func Replay(ctx context.Context, js jetstream.JetStream, batches []*Batch, set *ReplaySettings) (*ReplayStats, error) {
+// paced by set.Speed, waiting for each acknowledgement. When ctx ends it
+// stops and returns a *StoppedError.
+func Replay(ctx context.Context, js jetstream.JetStream, batches []*Batch, set *ReplaySettings) (st *ReplayStats, err error) {
 	var rs ReplaySettings
 	if set != nil {
 		rs = *set
 	}
-	st := &ReplayStats{From: math.Inf(1), To: math.Inf(-1)}
+	st = &ReplayStats{From: math.Inf(1), To: math.Inf(-1)}
 	if len(batches) == 0 {
 		return st, nil
 	}
+	total := len(batches)
+	defer func() {
+		if cerr := ctx.Err(); err != nil && cerr != nil {
+			err = &StoppedError{Err: cerr, Stored: st.StoredText(total)}
+		}
+	}()
 	var held map[string]float64
 	if rs.Resume {
 		var err error
@@ -204,6 +232,7 @@ func Replay(ctx context.Context, js jetstream.JetStream, batches []*Batch, set *
 			rest = append(rest, b)
 		}
 		batches = rest
+		total = len(batches)
 		if len(batches) == 0 {
 			return st, nil
 		}
@@ -252,11 +281,7 @@ func Replay(ctx context.Context, js jetstream.JetStream, batches []*Batch, set *
 		})
 		if err != nil {
 			if ctx.Err() == nil && publishRetryable(err) {
-				stored := "no batch was stored"
-				if st.Batches > 0 {
-					stored = fmt.Sprintf("%d of %d batches were stored, up to time %s", st.Batches, len(batches), timeText(st.To))
-				}
-				err = fmt.Errorf("%w: the broker stopped answering (no acknowledgement in %v); %s; to send the rest once the broker is back, run the same replay again with --resume, which skips each sensor's batches up to the last sample the broker holds for it (without --resume, batches stored already are not stored twice only within the broker's two-minute duplicate window; later they are stored again and the pipeline refuses them as late, into its dead letters)", err, publishRetryFor, stored)
+				err = fmt.Errorf("%w: the broker stopped answering (no acknowledgement in %v); %s; to send the rest once the broker is back, run the same replay again with --resume, which skips each sensor's batches up to the last sample the broker holds for it (without --resume, batches stored already are not stored twice only within the broker's two-minute duplicate window; later they are stored again and the pipeline refuses them as late, into its dead letters)", err, publishRetryFor, st.StoredText(len(batches)))
 			}
 			return st, err
 		}

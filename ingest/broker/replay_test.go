@@ -2,6 +2,7 @@ package broker
 
 import (
 	"context"
+	"errors"
 	"math"
 	"strings"
 	"testing"
@@ -288,5 +289,48 @@ func TestReplayResumeSendsOnlyTheRest(t *testing.T) {
 	// Run again with everything stored: nothing is sent.
 	if st, err := Replay(ctx, js, bs, &ReplaySettings{Shift: 10, Resume: true}); err != nil || st.Batches != 0 || st.Resumed != len(bs) {
 		t.Errorf("third run with everything stored: %+v, %v; want nothing sent", st, err)
+	}
+}
+
+// A replay interrupted (its context cancelled, as Ctrl-C does) says, like
+// one whose broker stopped answering, how many batches were stored and
+// up to which time, and stays recognisable as the interruption it is
+// (errors.Is context.Canceled). Before, it returned only "context
+// canceled", and the command printed "interrupted" without a word of what
+// had been stored. The batches are invented fixtures (testBatch).
+func TestReplayInterruptedSaysWhatWasStored(t *testing.T) {
+	if testing.Short() {
+		t.Skip("starts a broker")
+	}
+	s := startTestServer(t, ServerConfig{MQTTPort: -1})
+	_, js := connectJS(t, s.ClientURL(), Auth{})
+	ctx, cancel := context.WithTimeout(context.Background(), 30*time.Second)
+	defer cancel()
+	if _, err := Setup(ctx, js, StreamSettings{Memory: true}); err != nil {
+		t.Fatal(err)
+	}
+	var batches []*Batch
+	for i := range 3 {
+		b := testBatch(10)
+		for j := range b.Time {
+			b.Time[j] += float64(i)
+		}
+		batches = append(batches, b)
+	}
+	run, stop := context.WithCancel(ctx)
+	defer stop()
+	st, err := Replay(run, js, batches, &ReplaySettings{Progress: func(done, total int) {
+		if done == 1 {
+			stop()
+		}
+	}})
+	if !errors.Is(err, context.Canceled) {
+		t.Fatalf("error %v, want the context's", err)
+	}
+	if want := "1 of 3 batches were stored, up to time 1764650000.009"; !strings.Contains(err.Error(), want) {
+		t.Errorf("error %q does not say %q", err, want)
+	}
+	if st == nil || st.Batches != 1 {
+		t.Errorf("stats %+v, want 1 batch stored", st)
 	}
 }

@@ -46,6 +46,16 @@ type ServerConfig struct {
 	// space free at start plus of what the store holds), set explicitly so
 	// that GrowStore can raise it once space is freed.
 	MaxStore int64
+	// SyncAlways makes the JetStream store sync (fsync) every write
+	// before it is acknowledged, so that an acknowledged message survives
+	// a power cut or an operating system crash; SyncInterval, when
+	// SyncAlways is not set, is how often the store is synced, 0 meaning
+	// nats-server's default, 2 min. Without SyncAlways an acknowledged
+	// message is in the store's files (the operating system's cache), so
+	// it survives the process being killed but not a power cut before
+	// the next sync.
+	SyncAlways   bool
+	SyncInterval time.Duration
 	// Logf, when non-nil, receives the server's notices and warnings, and
 	// its errors unless Errorf is set.
 	Logf func(format string, args ...any)
@@ -103,6 +113,8 @@ func StartServer(cfg ServerConfig) (*Server, error) {
 		Authorization:      cfg.Token,
 		JetStreamMaxMemory: 256 << 20,
 		JetStreamMaxStore:  maxStore,
+		SyncAlways:         cfg.SyncAlways,
+		SyncInterval:       cfg.SyncInterval,
 	}
 	if opts.Port == 0 {
 		opts.Port = server.RANDOM_PORT

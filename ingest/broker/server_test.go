@@ -341,3 +341,21 @@ func TestSetupDirectGet(t *testing.T) {
 		}
 	}
 }
+
+// ServerConfig's SyncAlways and SyncInterval reach the JetStream store:
+// the server was started with nats-server's default (a sync every two
+// minutes) and no way to ask for more.
+func TestServerStoreSync(t *testing.T) {
+	if testing.Short() {
+		t.Skip("starts a broker")
+	}
+	for _, c := range []ServerConfig{{SyncAlways: true}, {SyncInterval: 5 * time.Second}} {
+		c.MQTTPort = -1
+		s := startTestServer(t, c)
+		js := s.ns.JetStreamConfig()
+		if js == nil || js.SyncAlways != c.SyncAlways || (c.SyncInterval > 0 && js.SyncInterval != c.SyncInterval) {
+			t.Errorf("asked for sync always %v every %v; the store runs with %+v", c.SyncAlways, c.SyncInterval, js)
+		}
+		s.Shutdown()
+	}
+}

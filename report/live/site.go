@@ -104,6 +104,14 @@ type BrokerConfig struct {
 	// freed. A value given is read at start: after changing it, restart
 	// serve. Not used with --broker.
 	StoreMaxBytes int64 `toml:"store_max_bytes"`
+	// StoreSync is how the embedded broker forces its store to the disk:
+	// "always" syncs every write before it is acknowledged (an
+	// acknowledged batch survives a power cut), a duration ("10s") syncs
+	// that often; "" means nats-server's default, every 2 min. Either
+	// way a write is in the operating system's files before it is
+	// acknowledged, so killing serve loses nothing acknowledged. Not used
+	// with --broker (a cluster's sync is its nats-server configuration's).
+	StoreSync string `toml:"store_sync"`
 	// User and Password (or Token) are the credentials the service itself
 	// uses. Users lists the accounts of the embedded server; when it is
 	// non-empty, unauthenticated clients are refused.
@@ -409,6 +417,9 @@ func (s *Site) validate() error {
 	}
 	if s.Broker.StoreMaxBytes < 0 {
 		return fmt.Errorf("broker.store_max_bytes %d: want 0 (the server's default) or more", s.Broker.StoreMaxBytes)
+	}
+	if _, _, err := s.Broker.SyncSetting(); err != nil {
+		return err
 	}
 	minDLQ := s.dlqMin()
 	switch {
@@ -758,4 +769,21 @@ func (s *Site) Asset(name string) *AssetConfig {
 		}
 	}
 	return nil
+}
+
+// SyncSetting reads store_sync: every write synced (always), or the
+// interval between syncs (0: nats-server's default).
+func (b *BrokerConfig) SyncSetting() (always bool, every time.Duration, err error) {
+	switch v := strings.TrimSpace(b.StoreSync); {
+	case v == "":
+		return false, 0, nil
+	case strings.EqualFold(v, "always"):
+		return true, 0, nil
+	default:
+		d, err := time.ParseDuration(v)
+		if err != nil || d <= 0 {
+			return false, 0, fmt.Errorf("broker.store_sync %q: want \"always\" (sync every write before it is acknowledged) or a positive duration such as \"10s\" (sync that often)", b.StoreSync)
+		}
+		return false, d, nil
+	}
 }
