@@ -268,8 +268,11 @@ func swapPick(g, a *Fit, lg, la swapLine, ac bool) int {
 			if !n.carries(lg, la, ac) {
 				continue
 			}
+			// n must lie beyond continuityReach of a's conductor 1 in the
+			// cross-section (across and in height, as misfit measures), or
+			// it would continue it as well.
 			xn := n.aside(la, u)
-			if math.Abs(xn) <= continuityReach || math.Abs(xm+xn) > continuityReach {
+			if math.Hypot(xn, n.point[2]-la.point[2]) <= continuityReach || math.Abs(xm+xn) > continuityReach {
 				continue
 			}
 			if f := misfit(xn); f < least {
