@@ -60,8 +60,9 @@ func jumpCount(t *testing.T, c interface{ Write(*dto.Metric) error }) float64 {
 // window instead, and no alarm said so. Now the future batches are held
 // (they jump far past each sensor's last sample and are far ahead of the
 // broker's clock), refused as malformed once the sensor's data goes on
-// from before them, after a pause longer than idle, with a clock-jump alarm per sensor; every live window
-// is published and none in the future.
+// from before them (after a pause longer than idle, during which a
+// window closes and a checkpoint is written), with a clock-jump alarm
+// per sensor; every live window is published and none in the future.
 func TestClockJumpBatchGivenUpAssetGoesOn(t *testing.T) {
 	if testing.Short() {
 		t.Skip("runs a broker and the service")
@@ -69,37 +70,44 @@ func TestClockJumpBatchGivenUpAssetGoesOn(t *testing.T) {
 	h := newHarness(t)
 	r := h.start(testSite(t, shortResumeSite), "w1")
 	base := liveBase()
-	h.publishFrom(base, 0, 1)
+	h.publishFrom(base, 0, 1.2) // windows 0 and 1, and window 2 open
 	// One batch per sensor 3000 s ahead, as the reviewer sent.
 	h.publishFrom(base, 3000, 0.1)
-	// The live data pauses for longer than idle (400 ms): a lone jumped
-	// batch is not taken as the sensor's clock for that.
+	// The live data pauses for longer than idle (400 ms): window 2 closes
+	// on idle (partial) and a checkpoint is written while the jumped
+	// batches are held; a lone jumped batch is not taken as the sensor's
+	// clock for the pause.
 	time.Sleep(1500 * time.Millisecond)
-	h.publishFrom(base, 1, 1)
+	h.publishFrom(base, 1.5, 1) // windows 3 and 4
 	k0 := int64(math.Floor(base/0.5 + 1e-7))
-	// Every one of the 60 live batches filed or refused as out of order.
+	// Every one of the 66 live batches filed or refused as out of order.
 	waitFor(t, 30*time.Second, "the live batches examined", func() bool {
 		return jumpCount(t, r.svc.met.messages.WithLabelValues("fenwick-lane", "accepted"))+
-			jumpCount(t, r.svc.met.deadLetters.WithLabelValues(broker.ReasonOutOfOrder)) >= 60
+			jumpCount(t, r.svc.met.deadLetters.WithLabelValues(broker.ReasonOutOfOrder)) >= 66
 	})
 	// Then the last window closes on idle (400 ms).
-	waitFor(t, 30*time.Second, "the last window closed", func() bool { return maxWindow(h.estimates()) >= k0+3 })
+	waitFor(t, 30*time.Second, "the last window closed", func() bool { return maxWindow(h.estimates()) >= k0+4 })
 	time.Sleep(time.Second)
 	r.stop(t)
 	seen := map[int64]int{}
 	for _, e := range h.estimates() {
 		k := e.Window - k0
 		seen[k]++
-		if k > 3 {
+		if k > 4 {
 			t.Errorf("estimate published for window %d, %v s after the live data", k, float64(k)*0.5)
 			continue
 		}
-		// sample gives a mean vertical reading of 1001 + 10 k over s0..s2.
-		if want := 1001 + 10*float64(k); len(e.Conductors) != 1 || math.Abs(e.Conductors[0].Current-want) > 1e-6 || e.Samples != 150 {
-			t.Errorf("window %d: %d samples, estimate %+v, want 150 samples and current %v", k, e.Samples, e.Conductors, want)
+		// sample gives a mean vertical reading of 1001 + 10 k over s0..s2;
+		// window 2 has 0.2 s of its 0.5 s.
+		samples := 150
+		if k == 2 {
+			samples = 60
+		}
+		if want := 1001 + 10*float64(k); len(e.Conductors) != 1 || math.Abs(e.Conductors[0].Current-want) > 1e-6 || e.Samples != samples {
+			t.Errorf("window %d: %d samples, estimate %+v, want %d samples and current %v", k, e.Samples, e.Conductors, samples, want)
 		}
 	}
-	for k := int64(0); k <= 3; k++ {
+	for k := int64(0); k <= 4; k++ {
 		if seen[k] != 1 {
 			t.Errorf("window %d published %d times, want once", k, seen[k])
 		}

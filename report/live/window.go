@@ -157,6 +157,7 @@ type clockJump struct {
 	from, to  float64 // first and last sample time of the run
 	ahead     float64 // how far the first batch was ahead of the broker's clock, s
 	batches   int
+	lastSeq   uint64 // stream sequence of the run's last batch
 	given     bool   // given up (else filed)
 	confirmed bool   // filed because the sensor kept to the jumped clock
 	why       string // why it was given up or filed
@@ -612,7 +613,7 @@ func (a *assembler) fileAhead(s int, now time.Time, confirmed bool, why string) 
 func (a *assembler) jump(s int, h []heldBatch, given, confirmed bool, why string) clockJump {
 	last := h[len(h)-1].b
 	return clockJump{sensor: s, from: h[0].b.Time[0], to: last.Time[last.Len()-1], ahead: h[0].ahead,
-		batches: len(h), given: given, confirmed: confirmed, why: why}
+		batches: len(h), lastSeq: h[len(h)-1].seq, given: given, confirmed: confirmed, why: why}
 }
 
 // takeJumps returns and forgets the clockJumps since the last call.

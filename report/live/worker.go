@@ -78,6 +78,9 @@ type assetWorker struct {
 	asm   *assembler
 	proc  *processor
 	ck    checkpoint
+	// takenLastSeq is ck.LastSeq when the worker took the asset: a held
+	// batch after it was first examined by this worker (see refuseRejected).
+	takenLastSeq uint64
 	// commissioning: windows waiting for the geometry.
 	pending []*window
 	pendDur float64
@@ -192,6 +195,7 @@ func (w *assetWorker) runAsset(ctx context.Context) error {
 		}
 		w.asm.done = w.ck.Done
 		w.asm.lastSeq = w.ck.LastSeq
+		w.takenLastSeq = w.ck.LastSeq
 		for k, v := range w.ck.Prev {
 			w.proc.prev[k] = v
 		}
@@ -869,8 +873,9 @@ func (w *assetWorker) publishAlarmAck(al Alarm, id string, count bool) (*jetstre
 	return ack, nil
 }
 
-// refuseRejected dead-letters the batches the assembler held back as far
-// ahead of the other sensors and then gave up.
+// refuseRejected dead-letters the batches the assembler held back (far
+// ahead of the other sensors, or of the broker's clock) and then gave
+// up, and raises the clock-jump alarms (noteJumps).
 func (w *assetWorker) refuseRejected(now time.Time) error {
 	for _, h := range w.asm.takeRejected() {
 		b := h.b
@@ -878,9 +883,17 @@ func (w *assetWorker) refuseRejected(now time.Time) error {
 		if h.clock {
 			what = "more than grace plus a window after the sensor's last sample and ahead of the broker's clock"
 		}
-		err := w.deadLetter(broker.ReasonMalformed, h.subj, h.seq, h.data,
-			fmt.Errorf("live: %s: batch from %v (%s) to %v started %s and was given up: %s",
-				h.subj, b.Time[0], unixString(b.Time[0]), b.Time[b.Len()-1], what, h.why))
+		cause := fmt.Errorf("live: %s: batch from %v (%s) to %v started %s and was given up: %s",
+			h.subj, b.Time[0], unixString(b.Time[0]), b.Time[b.Len()-1], what, h.why)
+		// A checkpoint written while the batch was held counts it as
+		// examined (LastSeq) though it was not refused yet: only one an
+		// earlier holder examined may have been refused already.
+		var err error
+		if h.seq > w.takenLastSeq {
+			err = w.storeDeadLetter(broker.ReasonMalformed, h.subj, h.seq, h.data, cause)
+		} else {
+			err = w.deadLetter(broker.ReasonMalformed, h.subj, h.seq, h.data, cause)
+		}
 		if err != nil {
 			return err
 		}
@@ -900,6 +913,9 @@ func (w *assetWorker) noteJumps() error {
 		if !j.given && !j.confirmed {
 			w.log.Info("batches held as ahead of the broker's clock filed: the clock reached them", "sensor", sensor, "from", unixString(j.from), "batches", j.batches)
 			continue
+		}
+		if j.given && j.lastSeq <= w.takenLastSeq {
+			continue // an earlier holder refused them, and raised the alarm
 		}
 		var msg string
 		if j.given {
@@ -985,6 +1001,12 @@ func (w *assetWorker) deadLetter(reason, subj string, seq uint64, data []byte, c
 		w.svc.met.messages.WithLabelValues(w.asset.Name, "skipped").Inc()
 		return nil
 	}
+	return w.storeDeadLetter(reason, subj, seq, data, cause)
+}
+
+// storeDeadLetter is deadLetter without the check for a message an
+// earlier holder examined.
+func (w *assetWorker) storeDeadLetter(reason, subj string, seq uint64, data []byte, cause error) error {
 	w.svc.met.messages.WithLabelValues(w.asset.Name, "dead-letter").Inc()
 	w.svc.met.deadLetters.WithLabelValues(reason).Inc()
 	w.log.Warn("message refused", "reason", reason, "seq", seq, "err", cause)
