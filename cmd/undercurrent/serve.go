@@ -151,6 +151,10 @@ func runServe(ctx context.Context, o *serveOptions, args []string, stderr io.Wri
 		url = srv.ClientURL()
 		storeBytes = srv.MaxStore()
 		log.Info("embedded broker started", "nats", url, "mqtt", srv.MQTTAddr(), "store", o.data)
+		if open := site.OpenBroker(); open != "" {
+			log.Warn("the embedded broker listens off loopback with no accounts ([broker] allow_anonymous = true): anyone who can reach it may read, forge and delete all data, estimates, alarms and checkpoints; add [[broker.users]] or a [broker] token",
+				"listen", open)
+		}
 		gctx, gcancel := context.WithCancel(ctx)
 		defer gcancel()
 		go growStore(gctx, srv, log)

@@ -9,6 +9,7 @@ import (
 	"net"
 	"os"
 	"path/filepath"
+	"strconv"
 	"strings"
 	"time"
 
@@ -119,6 +120,10 @@ type BrokerConfig struct {
 	Password string       `toml:"password"`
 	Token    string       `toml:"token"`
 	Users    []BrokerUser `toml:"users"`
+	// AllowAnonymous lets the embedded broker listen off loopback with
+	// neither users nor a token (see CheckEmbeddedBroker): every client
+	// that reaches it then has full rights. Off by default.
+	AllowAnonymous bool `toml:"allow_anonymous"`
 	// TLSCA, TLSCert and TLSKey are PEM files for reaching an external
 	// broker (--broker) over TLS: the certificate authorities to trust for
 	// its certificate, and the client certificate and key when it asks
@@ -272,7 +277,43 @@ func (s *Site) CheckEmbeddedBroker() error {
 			return fmt.Errorf("live: %s: broker.users[%d]: name and password are required", s.Path, i+1)
 		}
 	}
+	if addr := s.OpenBroker(); addr != "" && !s.Broker.AllowAnonymous {
+		return fmt.Errorf("live: %s: broker: the embedded broker would listen off loopback (%s) with no accounts: anyone who can reach it could read and forge sensor data, estimates and alarms and delete them all through the JetStream API. "+
+			"Add [[broker.users]] (the service's own account, named by [broker] user and password, and a gateway account that may only publish uc.data.>, MQTT uc/data/... included; see testdata/site/harrow-fen.toml) or a [broker] token, "+
+			"or keep listen and mqtt on 127.0.0.1, or set [broker] allow_anonymous = true to accept it (a closed network)", s.Path, addr)
+	}
 	return nil
+}
+
+// OpenBroker returns the embedded broker's listen addresses that are off
+// loopback ("listen" and "mqtt" as given, comma-separated) when it has
+// neither users nor a token, or "" when it has them or listens on
+// loopback only. A host that is not an IP address other than
+// "localhost" (a host name, or "0.0.0.0" and "::", every interface)
+// counts as off loopback; an empty host is the default, 127.0.0.1.
+func (s *Site) OpenBroker() string {
+	if len(s.Broker.Users) > 0 || s.Broker.Token != "" {
+		return ""
+	}
+	var open []string
+	for _, a := range []struct{ key, addr, def string }{{"listen", s.Broker.Listen, "127.0.0.1:4222"}, {"mqtt", s.Broker.MQTT, "127.0.0.1:1883"}} {
+		addr := a.addr
+		if addr == "" {
+			addr = a.def
+		}
+		if addr == "off" {
+			continue
+		}
+		host, _, err := net.SplitHostPort(addr)
+		if err != nil {
+			continue // refused with its key by the caller
+		}
+		if ip := net.ParseIP(host); host == "" || host == "localhost" || ip != nil && ip.IsLoopback() {
+			continue
+		}
+		open = append(open, a.key+" = "+strconv.Quote(addr))
+	}
+	return strings.Join(open, ", ")
 }
 
 // LoadSite reads and validates a site file.
