@@ -3,6 +3,7 @@ package broker
 import (
 	"context"
 	"fmt"
+	"net"
 	"net/url"
 	"strings"
 	"sync"
@@ -15,23 +16,40 @@ import (
 )
 
 // startCluster starts three embedded servers with JetStream routed into
-// one cluster (client ports base..base+2, routes base+10..base+12) and
-// returns the comma-separated client URLs once JetStream has a meta
+// one cluster (three client ports and three route ports the system has
+// free) and returns the comma-separated client URLs once JetStream has a meta
 // leader.
-func startCluster(t *testing.T, base int) string {
+func startCluster(t *testing.T) string {
 	t.Helper()
+	// Six ports the system has free now, held open together so that they
+	// differ, then let go for the servers (fixed ports in the ephemeral
+	// range had been taken by other processes' connections during a
+	// full run).
+	var ports []int
+	var held []net.Listener
+	for range 6 {
+		ln, err := net.Listen("tcp", "127.0.0.1:0")
+		if err != nil {
+			t.Fatal(err)
+		}
+		held = append(held, ln)
+		ports = append(ports, ln.Addr().(*net.TCPAddr).Port)
+	}
+	for _, ln := range held {
+		ln.Close()
+	}
 	var routes []*url.URL
 	for i := range 3 {
-		routes = append(routes, &url.URL{Scheme: "nats", Host: fmt.Sprintf("127.0.0.1:%d", base+10+i)})
+		routes = append(routes, &url.URL{Scheme: "nats", Host: fmt.Sprintf("127.0.0.1:%d", ports[3+i])})
 	}
 	var urls []string
 	var servers []*server.Server
 	for i := range 3 {
 		opts := &server.Options{
-			ServerName: fmt.Sprintf("n%d", i+1), Host: "127.0.0.1", Port: base + i,
+			ServerName: fmt.Sprintf("n%d", i+1), Host: "127.0.0.1", Port: ports[i],
 			JetStream: true, StoreDir: t.TempDir(), NoSigs: true,
 			JetStreamMaxMemory: 64 << 20, JetStreamMaxStore: 256 << 20,
-			Cluster: server.ClusterOpts{Name: "uc-test", Host: "127.0.0.1", Port: base + 10 + i},
+			Cluster: server.ClusterOpts{Name: "uc-test", Host: "127.0.0.1", Port: ports[3+i]},
 			Routes:  routes,
 		}
 		ns, err := server.NewServer(opts)
@@ -40,7 +58,7 @@ func startCluster(t *testing.T, base int) string {
 		}
 		go ns.Start()
 		servers = append(servers, ns)
-		urls = append(urls, fmt.Sprintf("nats://127.0.0.1:%d", base+i))
+		urls = append(urls, fmt.Sprintf("nats://127.0.0.1:%d", ports[i]))
 	}
 	t.Cleanup(func() {
 		for _, ns := range servers {
@@ -89,7 +107,7 @@ func TestSetupNeverLowersReplicas(t *testing.T) {
 	if testing.Short() {
 		t.Skip("runs a three-node cluster")
 	}
-	urls := startCluster(t, 46110)
+	urls := startCluster(t)
 	js := clusterJS(t, urls)
 	ctx, cancel := context.WithTimeout(context.Background(), 60*time.Second)
 	defer cancel()
@@ -129,7 +147,7 @@ func TestSetupTogetherOnFreshCluster(t *testing.T) {
 	if testing.Short() {
 		t.Skip("runs a three-node cluster")
 	}
-	urls := startCluster(t, 46130)
+	urls := startCluster(t)
 	jss := []jetstream.JetStream{clusterJS(t, urls), clusterJS(t, urls), clusterJS(t, urls)}
 	ctx, cancel := context.WithTimeout(context.Background(), 30*time.Second)
 	defer cancel()
