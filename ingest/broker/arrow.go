@@ -131,8 +131,7 @@ func decodeArrow(subject string, data []byte, maxDecoded int64) (b *Batch, err e
 	mr := ipc.NewMessageReader(bytes.NewReader(data), ipc.WithAllocator(alloc),
 		ipc.WithMetadataSizeLimit(lim), ipc.WithBodySizeLimit(lim))
 	rd, err := ipc.NewReaderFromMessageReader(mr, ipc.WithAllocator(alloc))
-	if err != nil {
-		mr.Release()
+	if err != nil { // the reader has released mr
 		return nil, fmt.Errorf("broker: %s: arrow stream: %v", subject, err)
 	}
 	defer rd.Release()
