@@ -68,19 +68,70 @@ func EncodeArrow(b *Batch) ([]byte, error) {
 	return buf.Bytes(), nil
 }
 
+// budgetAllocator hands out memory for the Arrow IPC reader up to a total
+// budget. Every allocation counts against it, freed or not, so the budget
+// bounds all the memory one payload makes the reader take, including
+// compressed buffers that a few bytes on the wire declare to be gigabytes.
+// Past the budget it panics (the IPC reader recovers) and records the
+// refusal, which decodeArrow reports as ErrDecodedTooLarge.
+type budgetAllocator struct {
+	mem         memory.Allocator
+	used, limit int64
+	refused     int64 // size of the first allocation refused, 0 if none
+}
+
+func (a *budgetAllocator) take(n int) {
+	if n <= 0 {
+		return
+	}
+	if a.used+int64(n) > a.limit {
+		if a.refused == 0 {
+			a.refused = int64(n)
+		}
+		panic(fmt.Sprintf("decoded size over %d bytes", a.limit))
+	}
+	a.used += int64(n)
+}
+
+func (a *budgetAllocator) Allocate(size int) []byte {
+	a.take(size)
+	return a.mem.Allocate(size)
+}
+
+func (a *budgetAllocator) Reallocate(size int, b []byte) []byte {
+	a.take(size - len(b))
+	return a.mem.Reallocate(size, b)
+}
+
+func (a *budgetAllocator) Free(b []byte) { a.mem.Free(b) }
+
 // decodeArrow reads an Arrow IPC stream; every record batch in it is
 // appended. Columns are found by name; time, bx, by, bz are required and
 // must be float64 without nulls, temp is optional; other columns are ignored.
-func decodeArrow(subject string, data []byte) (b *Batch, err error) {
+// The reader may allocate at most maxDecoded bytes in all (message bodies,
+// decompressed buffers), and no message part may be longer than the payload;
+// a stream needing more is refused with ErrDecodedTooLarge before the memory
+// is taken.
+func decodeArrow(subject string, data []byte, maxDecoded int64) (b *Batch, err error) {
+	alloc := &budgetAllocator{mem: memory.DefaultAllocator, limit: maxDecoded}
 	defer func() {
 		// The IPC reader can panic on corrupt flatbuffers; user data must
 		// never crash the service.
 		if r := recover(); r != nil {
 			b, err = nil, fmt.Errorf("broker: %s: corrupt arrow stream: %v", subject, r)
 		}
+		if alloc.refused != 0 {
+			b, err = nil, fmt.Errorf("%w: broker: %s: arrow stream declares more data than the decode limit of %d bytes (%d bytes taken, %d more asked for; %d bytes on the wire)",
+				ErrDecodedTooLarge, subject, maxDecoded, alloc.used, alloc.refused, len(data))
+		}
 	}()
-	rd, err := ipc.NewReader(bytes.NewReader(data), ipc.WithAllocator(memory.DefaultAllocator))
-	if err != nil {
+	// ipc.NewReader does not pass the size limits on to its message reader,
+	// so the message reader is made here.
+	lim := int64(len(data))
+	mr := ipc.NewMessageReader(bytes.NewReader(data), ipc.WithAllocator(alloc),
+		ipc.WithMetadataSizeLimit(lim), ipc.WithBodySizeLimit(lim))
+	rd, err := ipc.NewReaderFromMessageReader(mr, ipc.WithAllocator(alloc))
+	if err != nil { // the reader has released mr
 		return nil, fmt.Errorf("broker: %s: arrow stream: %v", subject, err)
 	}
 	defer rd.Release()

@@ -33,6 +33,15 @@ const (
 // ErrMalformed marks payloads that cannot be decoded or fail validation.
 var ErrMalformed = errors.New("malformed payload")
 
+// ErrDecodedTooLarge marks payloads that would decode to more memory than
+// the decode limit (a compressed Arrow stream can declare gigabytes in a few
+// kilobytes). Such errors also wrap ErrMalformed.
+var ErrDecodedTooLarge = errors.New("payload decodes past the limit")
+
+// DefaultMaxDecoded is the decode limit of Decode: 16 MiB, sixteen times the
+// pipeline's default max_message_bytes.
+const DefaultMaxDecoded = 16 << 20
+
 // jsonBatch is the JSON sample-batch payload (see the package documentation).
 type jsonBatch struct {
 	Asset  string    `json:"asset,omitempty"`
@@ -51,7 +60,18 @@ type jsonBatch struct {
 // '{' is JSON and one starting with the Arrow IPC continuation marker
 // 0xFFFFFFFF is an Arrow IPC stream. The batch is validated (see Validate).
 // Errors wrap ErrMalformed and name the subject, the row and the column.
+// Decoding may take at most DefaultMaxDecoded bytes; see DecodeLimit.
 func Decode(subject, contentType string, data []byte) (*Batch, error) {
+	return DecodeLimit(subject, contentType, data, DefaultMaxDecoded)
+}
+
+// DecodeLimit is Decode with a bound on the memory decoding may take:
+// an Arrow stream whose messages and (decompressed) buffers add up to more
+// than maxDecoded bytes is refused before the memory is allocated, with an
+// error wrapping ErrDecodedTooLarge and ErrMalformed. A JSON payload needs
+// at most a few bytes of memory per byte of text (a shortest number, "0,",
+// becomes 8 bytes), so it is bounded by the payload size and not checked.
+func DecodeLimit(subject, contentType string, data []byte, maxDecoded int64) (*Batch, error) {
 	asset, sensor, err := ParseDataSubject(subject)
 	if err != nil {
 		return nil, fmt.Errorf("%w: %w", ErrMalformed, err)
@@ -61,7 +81,7 @@ func Decode(subject, contentType string, data []byte) (*Batch, error) {
 	case contentType == ContentJSON || (contentType == "" && looksJSON(data)):
 		b, err = decodeJSON(subject, data)
 	case contentType == ContentArrow || (contentType == "" && looksArrow(data)):
-		b, err = decodeArrow(subject, data)
+		b, err = decodeArrow(subject, data, maxDecoded)
 	default:
 		head := data
 		if len(head) > 16 {

@@ -133,6 +133,10 @@ func (s *Service) readyz(w http.ResponseWriter, r *http.Request) {
 		http.Error(w, "broker store full: "+*full, http.StatusServiceUnavailable)
 		return
 	}
+	if e := s.beatErr.Load(); e != nil {
+		http.Error(w, "heartbeat failing, leases cannot be renewed: "+*e, http.StatusServiceUnavailable)
+		return
+	}
 	fmt.Fprintln(w, "ready")
 }
 
@@ -337,6 +341,9 @@ type query struct {
 	opts     []QueryOption
 }
 
+// maxSinceSeconds bounds since: Unix seconds past it do not fit an int64.
+const maxSinceSeconds = 9e18
+
 // parseQuery reads the listing parameters of r; a parameter not in
 // allowed (a misspelt asset= would otherwise list every asset's alarms)
 // is refused.
@@ -389,8 +396,16 @@ func parseQuery(r *http.Request, allowed ...string) (query, error) {
 	}
 	if v := r.URL.Query().Get("since"); v != "" {
 		t, err := parseTime(v)
-		if err != nil {
+		if err != nil || math.IsNaN(t) {
 			return q, fmt.Errorf("parameter since: %q is neither seconds nor an RFC 3339 time", v)
+		}
+		// Before, NaN, Inf and 1e300 overflowed the conversion to int64
+		// and answered every alarm, which a poller takes as new ones.
+		if !(math.Abs(t) < 1e300) {
+			return q, fmt.Errorf("parameter since: %q is not a finite time", v)
+		}
+		if !(math.Abs(t) < maxSinceSeconds) {
+			return q, fmt.Errorf("parameter since: %q is beyond the times the service can compare (±%g s)", v, maxSinceSeconds)
 		}
 		sec, frac := math.Modf(t)
 		q.since = time.Unix(int64(sec), int64(frac*1e9))

@@ -135,6 +135,13 @@ func (s *Service) restartStatus(ctx context.Context, asset string) (*RestartStat
 	return &r, e.Revision(), nil
 }
 
+// restartBodyMax is the largest restart request body read, bytes.
+const restartBodyMax = 64 << 10
+
+// errBodyTooLarge refuses a restart request body over restartBodyMax
+// (answered 413).
+var errBodyTooLarge = fmt.Errorf("body over %d KiB: a restart request body is one small JSON object, {\"start\": \"...\"}", restartBodyMax>>10)
+
 // restartParams reads the optional start of a restart request from the
 // query (start=...) or a JSON body {"start": "..."}; nil means the
 // asset's configured start. Errors name the asset as the site file does.
@@ -142,9 +149,15 @@ func restartParams(r *http.Request, asset string) (*Start, error) {
 	v := r.URL.Query().Get("start")
 	given := r.URL.Query().Has("start")
 	if r.Body != nil {
-		body, err := io.ReadAll(io.LimitReader(r.Body, 64<<10))
+		// One byte past the limit is read so that a longer body is
+		// refused, not cut: before, a cut that left only whitespace ran
+		// the restart from the configured start instead of the one asked.
+		body, err := io.ReadAll(io.LimitReader(r.Body, restartBodyMax+1))
 		if err != nil {
 			return nil, fmt.Errorf("body: %w", err)
+		}
+		if len(body) > restartBodyMax {
+			return nil, errBodyTooLarge
 		}
 		if len(strings.TrimSpace(string(body))) > 0 {
 			if ct := r.Header.Get("Content-Type"); ct != "" {
@@ -184,6 +197,10 @@ func (s *Service) restart(w http.ResponseWriter, r *http.Request) {
 		return
 	}
 	start, err := restartParams(r, a.Name)
+	if errors.Is(err, errBodyTooLarge) {
+		httpError(w, http.StatusRequestEntityTooLarge, err.Error())
+		return
+	}
 	if err != nil {
 		httpError(w, http.StatusBadRequest, err.Error())
 		return

@@ -105,6 +105,10 @@ type Service struct {
 	// storeFull holds the error of the last write the broker refused for
 	// want of storage, until a write succeeds again (see noteStore).
 	storeFull atomic.Pointer[string]
+	// beatErr is the error of the latest heartbeat, nil once one
+	// succeeds: /readyz fails while the worker cannot heartbeat (its
+	// leases, in the same store, cannot be renewed either).
+	beatErr atomic.Pointer[string]
 }
 
 type holding struct {
@@ -258,8 +262,9 @@ func (s *Service) Run(ctx context.Context) error {
 	}
 	var srv *http.Server
 	if ln := s.httpLn; ln != nil {
-		srv = &http.Server{Handler: s.Handler(), ReadHeaderTimeout: 10 * time.Second}
-		go srv.Serve(ln)
+		var sln net.Listener
+		srv, sln = newHTTPServer(s.Handler(), ln, defaultHTTPLimits)
+		go srv.Serve(sln)
 		s.log.Info("http api listening", "addr", ln.Addr().String())
 		if !s.loopback() && s.site.Service.Token == "" {
 			s.log.Warn("the HTTP API listens off loopback but no service token is configured: every API and /metrics request will be refused (401); set [service] token, or token_env and that variable, or listen on loopback",
@@ -336,6 +341,10 @@ func (s *Service) leaseRound(ctx context.Context, order []string) {
 	_, err := st.Workers.Put(rctx, s.id, s.heartbeat(time.Now()))
 	if err != nil {
 		s.log.Warn("heartbeat failed", "err", err)
+		msg := err.Error()
+		s.beatErr.Store(&msg)
+	} else {
+		s.beatErr.Store(nil)
 	}
 	s.noteStore(err)
 	workers := 1

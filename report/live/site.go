@@ -432,6 +432,11 @@ func (s *Site) validate() error {
 			return fmt.Errorf("service.%s %v: want a positive duration", d.key, d.v)
 		}
 	}
+	if s.Service.MaxMessageBytes < 0 {
+		// Before, a negative limit was kept and every sensor batch went to
+		// uc.dlq.oversized ("1450 bytes, limit -5").
+		return fmt.Errorf("service.max_message_bytes %d: want a positive size in bytes (0 or absent means 1 MiB)", s.Service.MaxMessageBytes)
+	}
 	if s.Service.MaxMessageBytes == 0 {
 		s.Service.MaxMessageBytes = 1 << 20
 	}
@@ -646,6 +651,12 @@ func (s *Site) dlqDefault() int64 {
 // the most of a refused payload a dead letter keeps. dlq_max_bytes takes
 // no less, and the default bound is cut to no less on a small store.
 func (s *Site) dlqMin() int64 { return 4 * int64(s.Service.MaxMessageBytes) }
+
+// maxDecoded is the most memory one sensor message may take to decode:
+// sixteen times max_message_bytes. A compressed Arrow stream declaring more
+// (a few kilobytes can declare gigabytes) is dead-lettered as oversized
+// before the memory is allocated.
+func (s *Site) maxDecoded() int64 { return 16 * int64(s.Service.MaxMessageBytes) }
 
 // defaultEarthField is a DC asset's earth_field when the site file gives
 // none, nT: the geomagnetic field at the Earth's surface is about 22,000

@@ -531,8 +531,11 @@ func (w *assetWorker) handle(m jetstream.Msg) error {
 		return w.deadLetter(broker.ReasonUnknownSensor, subj, seq, data, fmt.Errorf("live: %s: sensor %q is not listed for asset %s in the site file", subj, sensor, w.asset.Name))
 	}
 	t0 := time.Now()
-	b, err := broker.Decode(subj, m.Headers().Get(broker.HeaderContentType), data)
+	b, err := broker.DecodeLimit(subj, m.Headers().Get(broker.HeaderContentType), data, w.svc.site.maxDecoded())
 	met.stage.WithLabelValues("decode").Observe(time.Since(t0).Seconds())
+	if errors.Is(err, broker.ErrDecodedTooLarge) {
+		return w.deadLetter(broker.ReasonOversized, subj, seq, data, err)
+	}
 	if err != nil {
 		return w.deadLetter(broker.ReasonMalformed, subj, seq, data, err)
 	}
