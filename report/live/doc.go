@@ -36,14 +36,7 @@
 // edges) loses the samples at or before it, counted in
 // uc_overlap_samples_total, and the rest are filed; a batch with no sample
 // after it is dead-lettered as out-of-order, and one entirely inside
-// published windows as late. A batch that jumps more than Grace plus a
-// window past its sensor's last sample and ahead of the broker's clock
-// (a gateway clock stepped forward) is held, so that it cannot make the
-// true data after it out-of-order: refused as malformed, with a
-// clock-jump alarm, when the sensor's data goes on from before it; filed
-// as dated, with the alarm, when the sensor keeps sending in line with
-// the jumped clock for Idle of wall time; filed when the wall clock
-// reaches it. A message is
+// published windows as late. A message is
 // dead-lettered once: the checkpoint counts it as examined as soon as its
 // dead letter is stored (and is written then if no window is open), and
 // a later holder that reads it again to rebuild an open window counts it

@@ -71,14 +71,6 @@ type assembler struct {
 	seen     []time.Time // wall time of each sensor's last batch in order
 	held     [][]heldBatch
 	rejected []heldBatch
-	// ahead holds, per sensor, batches that jumped far ahead of both the
-	// sensor's own last sample and the broker's clock (see clockAhead);
-	// jumps lists what became of them, for the caller to alarm.
-	ahead [][]heldBatch
-	jumps []clockJump
-	// clock is the broker's clock when the batch being added was stored;
-	// zero leaves the clock-jump check out.
-	clock time.Time
 	// stale is how long (wall time) a sensor that sent nothing still counts
 	// in the quorum; 0 counts every sensor ever heard from.
 	stale   time.Duration
@@ -108,7 +100,6 @@ func newAssembler(window, grace time.Duration, sensors int) *assembler {
 	a.dtN = make([]int, sensors)
 	a.seen = make([]time.Time, sensors)
 	a.held = make([][]heldBatch, sensors)
-	a.ahead = make([][]heldBatch, sensors)
 	for i := range a.water {
 		a.water[i] = math.Inf(-1)
 	}
@@ -126,7 +117,6 @@ const (
 	late                 // every sample falls in a closed window
 	outOfRange           // a time too large for a window index
 	heldBack             // far ahead of the other sensors: held (see assembler)
-	heldAhead            // jumped far ahead of the broker's clock: held (see clockAhead)
 )
 
 // maxWindowIndex bounds |t/L|: window indices and the times computed
@@ -142,25 +132,6 @@ type heldBatch struct {
 	subj string    // message subject and payload, for a dead letter
 	data []byte
 	why  string // why it was given up
-	// clock marks a batch held as ahead of the broker's clock (see
-	// clockAhead); ahead is how far ahead, s.
-	clock bool
-	ahead float64
-}
-
-// clockJump is what became of a run of one sensor's batches held as
-// ahead of the broker's clock: given up (the sensor's data went on from
-// before them) or filed as dated (confirmed: the sensor kept sending in
-// line with them, or the clock reached them).
-type clockJump struct {
-	sensor    int
-	from, to  float64 // first and last sample time of the run
-	ahead     float64 // how far the first batch was ahead of the broker's clock, s
-	batches   int
-	lastSeq   uint64 // stream sequence of the run's last batch
-	given     bool   // given up (else filed)
-	confirmed bool   // filed because the sensor kept to the jumped clock
-	why       string // why it was given up or filed
 }
 
 // maxHeld bounds the batches held per sensor; older ones are given up.
@@ -199,10 +170,6 @@ func (a *assembler) addMsg(s int, seq uint64, b *broker.Batch, now time.Time, su
 		// edges). The samples already had are dropped, the new ones kept.
 		b = trimBefore(b, a.water[s])
 		a.overlap = n - b.Len()
-	}
-	var held bool
-	if b, res, held = a.clockAhead(s, seq, b, now, subj, data); held {
-		return res, 0
 	}
 	if q, k := a.others(now, s); k >= 2 && b.Time[0] > q+a.grace+a.L {
 		// Far ahead of every other sensor: either this sensor's clock
@@ -265,7 +232,6 @@ func (a *assembler) takeRejected() []heldBatch {
 // release files the held batches that are no longer ahead of the other
 // sensors, and gives up those held for longer than stale.
 func (a *assembler) release(now time.Time) {
-	a.releaseAhead(now)
 	for again := true; again; {
 		again = false
 		for s, h := range a.held {
@@ -477,148 +443,5 @@ func (a *assembler) resumeSeq() uint64 {
 			m = min(m, x.seq)
 		}
 	}
-	for _, h := range a.ahead {
-		for _, x := range h {
-			m = min(m, x.seq)
-		}
-	}
 	return m
-}
-
-// maxAhead bounds the batches held per sensor as ahead of the broker's
-// clock; past it the run is taken as confirmed (see clockAhead).
-const maxAheadHeld = 4096
-
-// aheadMargin is how far a batch may start ahead of the broker's clock
-// when it was stored, and after the sensor's own last sample, before
-// clockAhead holds it: grace plus a window, as for the other sensors.
-func (a *assembler) aheadMargin() float64 { return a.grace + a.L }
-
-// clockAhead holds a batch of sensor s that jumped forward: one that
-// starts more than aheadMargin after the sensor's last sample and more
-// than aheadMargin ahead of the broker's clock when it was stored
-// (a.clock). Data resuming after a gap is not ahead of the clock, and a
-// log replayed faster than real time (which runs ahead of the clock) is
-// in line with its own last sample; a gateway whose clock stepped
-// forward, or a batch forged with a future time, is both. Filed at once,
-// such a batch would become the sensor's last sample, and every true
-// batch after it would be refused as out of order until the wall clock
-// reached it (up to max_ahead).
-//
-// The held run is given up (takeRejected, and a clockJump for an
-// alarm) when the sensor's next batch goes back before it: the sensor's
-// data goes on from where it was, and the run was the outlier. It is
-// filed (a clockJump too) when the wall clock reaches it, or, confirmed,
-// when the sensor has kept sending in line with it (at least two batches
-// covering half of stale or more) for stale of wall time, or for
-// maxAheadHeld batches, with nothing from before it: the gateway's clock
-// really is ahead, and its data is processed as dated rather than not at
-// all. A lone batch, or a few, stays held until the clock reaches it or
-// the sensor's data goes on from before it, however long its true data
-// pauses. A sensor with no last sample (a worker that
-// took the asset with no window open) is judged from the end of the
-// asset's last published window. clockAhead reports whether it dealt
-// with b (held it, or filed it with its run: res says which); otherwise
-// the b it returns (less any samples its run already had) is filed as
-// usual.
-func (a *assembler) clockAhead(s int, seq uint64, b *broker.Batch, now time.Time, subj string, data []byte) (*broker.Batch, addResult, bool) {
-	if h := a.ahead[s]; len(h) > 0 {
-		last := h[len(h)-1].b
-		end := last.Time[last.Len()-1]
-		if b.Time[0] < h[0].b.Time[0] {
-			a.giveUpAhead(s, fmt.Sprintf("the sensor's next batch, from %v (%s), goes on from before it: its clock jumped forward and back", b.Time[0], unixString(b.Time[0])))
-			return b, added, false
-		}
-		if b.Time[0] <= end {
-			n := b.Len()
-			b = trimBefore(b, end)
-			a.overlap += n - b.Len()
-			if b.Len() == 0 {
-				return b, outOfOrder, true
-			}
-		}
-		if a.pastClock(b) {
-			a.ahead[s] = append(h, heldBatch{seq: seq, b: b, at: now, subj: subj, data: data, clock: true})
-			if len(a.ahead[s]) > maxAheadHeld {
-				a.fileAhead(s, now, true, fmt.Sprintf("the sensor sent more than %d batches in line with it", maxAheadHeld))
-				return b, added, true
-			}
-			a.seen[s] = now
-			return b, heldAhead, true
-		}
-		a.fileAhead(s, now, false, "the broker's clock reached it")
-		return b, added, false
-	}
-	ref := a.water[s]
-	if math.IsInf(ref, -1) {
-		ref = a.done
-	}
-	if math.IsInf(ref, -1) || b.Time[0] <= ref+a.aheadMargin() || !a.pastClock(b) {
-		return b, added, false
-	}
-	ahead := b.Time[0] - float64(a.clock.UnixNano())/1e9
-	a.ahead[s] = []heldBatch{{seq: seq, b: b, at: now, subj: subj, data: data, clock: true, ahead: ahead}}
-	a.seen[s] = now
-	return b, heldAhead, true
-}
-
-// pastClock reports whether b starts more than aheadMargin ahead of the
-// broker's clock when it was stored.
-func (a *assembler) pastClock(b *broker.Batch) bool {
-	return !a.clock.IsZero() && b.Time[0] > float64(a.clock.UnixNano())/1e9+a.aheadMargin()
-}
-
-// releaseAhead files the runs held as ahead of the clock that the wall
-// clock has reached, or that have been held for stale.
-func (a *assembler) releaseAhead(now time.Time) {
-	t := float64(now.UnixNano()) / 1e9
-	for s, h := range a.ahead {
-		switch {
-		case len(h) == 0:
-		case h[0].b.Time[0] <= t+a.aheadMargin():
-			a.fileAhead(s, now, false, "the wall clock reached it")
-		case a.stale > 0 && now.Sub(h[0].at) >= a.stale && len(h) >= 2 && aheadSpan(h) >= a.stale.Seconds()/2:
-			a.fileAhead(s, now, true, fmt.Sprintf("the sensor sent %.1f s of data in line with it, and nothing from before it, for %v", aheadSpan(h), a.stale))
-		}
-	}
-}
-
-// aheadSpan is the sample time a held run covers, s.
-func aheadSpan(h []heldBatch) float64 {
-	last := h[len(h)-1].b
-	return last.Time[last.Len()-1] - h[0].b.Time[0]
-}
-
-// giveUpAhead gives up sensor s's run held as ahead of the clock.
-func (a *assembler) giveUpAhead(s int, why string) {
-	h := a.ahead[s]
-	a.ahead[s] = nil
-	for i := range h {
-		h[i].why = why
-	}
-	a.rejected = append(a.rejected, h...)
-	a.jumps = append(a.jumps, a.jump(s, h, true, false, why))
-}
-
-// fileAhead files sensor s's run held as ahead of the clock, in order.
-func (a *assembler) fileAhead(s int, now time.Time, confirmed bool, why string) {
-	h := a.ahead[s]
-	a.ahead[s] = nil
-	for _, x := range h {
-		a.accept(s, x.seq, x.b, now)
-	}
-	a.jumps = append(a.jumps, a.jump(s, h, false, confirmed, why))
-}
-
-func (a *assembler) jump(s int, h []heldBatch, given, confirmed bool, why string) clockJump {
-	last := h[len(h)-1].b
-	return clockJump{sensor: s, from: h[0].b.Time[0], to: last.Time[last.Len()-1], ahead: h[0].ahead,
-		batches: len(h), lastSeq: h[len(h)-1].seq, given: given, confirmed: confirmed, why: why}
-}
-
-// takeJumps returns and forgets the clockJumps since the last call.
-func (a *assembler) takeJumps() []clockJump {
-	j := a.jumps
-	a.jumps = nil
-	return j
 }

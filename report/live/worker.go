@@ -78,9 +78,6 @@ type assetWorker struct {
 	asm   *assembler
 	proc  *processor
 	ck    checkpoint
-	// takenLastSeq is ck.LastSeq when the worker took the asset: a held
-	// batch after it was first examined by this worker (see refuseRejected).
-	takenLastSeq uint64
 	// commissioning: windows waiting for the geometry.
 	pending []*window
 	pendDur float64
@@ -196,7 +193,6 @@ func (w *assetWorker) runAsset(ctx context.Context) error {
 		}
 		w.asm.done = w.ck.Done
 		w.asm.lastSeq = w.ck.LastSeq
-		w.takenLastSeq = w.ck.LastSeq
 		for k, v := range w.ck.Prev {
 			w.proc.prev[k] = v
 		}
@@ -550,9 +546,7 @@ func (w *assetWorker) handle(m jetstream.Msg) error {
 		}
 	}
 	t0 = time.Now()
-	w.asm.clock = md.Timestamp
 	res, _ := w.asm.addMsg(si, seq, b, t0, subj, data)
-	w.asm.clock = time.Time{}
 	met.stage.WithLabelValues("assemble").Observe(time.Since(t0).Seconds())
 	switch res {
 	case outOfRange:
@@ -562,12 +556,6 @@ func (w *assetWorker) handle(m jetstream.Msg) error {
 		w.noteData(md.Timestamp, t0)
 		met.messages.WithLabelValues(w.asset.Name, "held").Inc()
 		w.log.Warn("batch held: far ahead of every other sensor", "subject", subj, "seq", seq, "start", b.Time[0])
-		return w.refuseRejected(t0)
-	case heldAhead:
-		w.noteData(md.Timestamp, t0)
-		met.messages.WithLabelValues(w.asset.Name, "held").Inc()
-		w.log.Warn("batch held: it jumps ahead of the sensor's last sample and of the broker's clock (a gateway clock stepped forward?); given up if the sensor's data goes on from before it, filed when the clock reaches it or the sensor keeps to it",
-			"subject", subj, "seq", seq, "start", b.Time[0], "stored", md.Timestamp.UTC().Format(time.RFC3339Nano))
 		return w.refuseRejected(t0)
 	case outOfOrder:
 		return w.deadLetter(broker.ReasonOutOfOrder, subj, seq, data,
@@ -877,70 +865,15 @@ func (w *assetWorker) publishAlarmAck(al Alarm, id string, count bool) (*jetstre
 	return ack, nil
 }
 
-// refuseRejected dead-letters the batches the assembler held back (far
-// ahead of the other sensors, or of the broker's clock) and then gave
-// up, and raises the clock-jump alarms (noteJumps).
+// refuseRejected dead-letters the batches the assembler held back as far
+// ahead of the other sensors and then gave up.
 func (w *assetWorker) refuseRejected(now time.Time) error {
 	for _, h := range w.asm.takeRejected() {
 		b := h.b
-		what := "more than grace plus a window ahead of every other sensor of the asset"
-		if h.clock {
-			what = "more than grace plus a window after the sensor's last sample and ahead of the broker's clock"
-		}
-		cause := fmt.Errorf("live: %s: batch from %v (%s) to %v started %s and was given up: %s",
-			h.subj, b.Time[0], unixString(b.Time[0]), b.Time[b.Len()-1], what, h.why)
-		// A checkpoint written while the batch was held counts it as
-		// examined (LastSeq) though it was not refused yet: only one an
-		// earlier holder examined may have been refused already.
-		var err error
-		if h.seq > w.takenLastSeq {
-			err = w.storeDeadLetter(broker.ReasonMalformed, h.subj, h.seq, h.data, cause)
-		} else {
-			err = w.deadLetter(broker.ReasonMalformed, h.subj, h.seq, h.data, cause)
-		}
+		err := w.deadLetter(broker.ReasonMalformed, h.subj, h.seq, h.data,
+			fmt.Errorf("live: %s: batch from %v (%s) to %v started more than grace plus a window ahead of every other sensor of the asset and was given up: %s",
+				h.subj, b.Time[0], unixString(b.Time[0]), b.Time[b.Len()-1], h.why))
 		if err != nil {
-			return err
-		}
-	}
-	return w.noteJumps()
-}
-
-// noteJumps raises a clock-jump alarm for each run of a sensor's batches
-// held as ahead of the broker's clock (see clockAhead) that was given up
-// or filed as confirmed, and logs those the clock reached. The alarm goes
-// in the window after the last published one (or the asset's earliest
-// unpublished one), as data-lost does, so the alarm history stays in
-// window order.
-func (w *assetWorker) noteJumps() error {
-	for _, j := range w.asm.takeJumps() {
-		sensor := w.asset.Sensors[j.sensor].Name
-		if !j.given && !j.confirmed {
-			w.log.Info("batches held as ahead of the broker's clock filed: the clock reached them", "sensor", sensor, "from", unixString(j.from), "batches", j.batches)
-			continue
-		}
-		if j.given && j.lastSeq <= w.takenLastSeq {
-			continue // an earlier holder refused them, and raised the alarm
-		}
-		var msg string
-		if j.given {
-			msg = fmt.Sprintf("sensor %s of asset %s sent %d batch(es) dated %s to %s, %.0f s ahead of the broker's clock and far after its last sample; they were refused (uc.dlq.malformed), not processed: %s",
-				sensor, w.asset.Name, j.batches, unixString(j.from), unixString(j.to), j.ahead, j.why)
-		} else {
-			msg = fmt.Sprintf("sensor %s of asset %s sends data dated %.0f s ahead of the broker's clock (from %s), after a jump from its last sample; it kept to that clock (%s), so its data is processed as dated: check the gateway's clock, as data it sends once its clock is set back will be refused as out of order until the new times pass the jumped ones",
-				sensor, w.asset.Name, j.ahead, unixString(j.from), j.why)
-		}
-		w.log.Warn("sensor clock jump", "sensor", sensor, "ahead_s", j.ahead, "given_up", j.given, "from", unixString(j.from), "batches", j.batches)
-		L := w.asset.Window.Seconds()
-		idx := w.ck.Window + 1
-		if w.ck.Done == 0 {
-			idx = w.asm.index(j.from)
-			if k, ok := w.firstUnpublished(); ok && k < idx {
-				idx = k
-			}
-		}
-		win := &window{Index: idx, Start: float64(idx) * L, End: float64(idx+1) * L}
-		al := w.proc.alarm(win, AlarmClockJump, sensor, j.ahead, w.asm.aheadMargin(), msg)
-		if err := w.publishAlarm(al, w.msgID(idx)+"/"+al.Kind+"/"+sensor+"/"+strconv.FormatFloat(j.from, 'f', -1, 64)); err != nil {
 			return err
 		}
 	}
@@ -1005,12 +938,6 @@ func (w *assetWorker) deadLetter(reason, subj string, seq uint64, data []byte, c
 		w.svc.met.messages.WithLabelValues(w.asset.Name, "skipped").Inc()
 		return nil
 	}
-	return w.storeDeadLetter(reason, subj, seq, data, cause)
-}
-
-// storeDeadLetter is deadLetter without the check for a message an
-// earlier holder examined.
-func (w *assetWorker) storeDeadLetter(reason, subj string, seq uint64, data []byte, cause error) error {
 	w.svc.met.messages.WithLabelValues(w.asset.Name, "dead-letter").Inc()
 	w.svc.met.deadLetters.WithLabelValues(reason).Inc()
 	w.log.Warn("message refused", "reason", reason, "seq", seq, "err", cause)
