@@ -210,21 +210,7 @@ func TestReplayBrokerGoneSaysWhatWasStored(t *testing.T) {
 	attempt, retryFor := publishAttempt, publishRetryFor
 	publishAttempt, publishRetryFor = 300*time.Millisecond, time.Second
 	t.Cleanup(func() { publishAttempt, publishRetryFor = attempt, retryFor })
-	s := startTestServer(t, ServerConfig{MQTTPort: -1})
-	_, js := connectJS(t, s.ClientURL(), Auth{})
-	ctx, cancel := context.WithTimeout(context.Background(), 30*time.Second)
-	defer cancel()
-	if _, err := Setup(ctx, js, StreamSettings{Memory: true}); err != nil {
-		t.Fatal(err)
-	}
-	var batches []*Batch
-	for i := range 3 {
-		b := testBatch(10)
-		for j := range b.Time {
-			b.Time[j] += float64(i)
-		}
-		batches = append(batches, b)
-	}
+	s, ctx, js, batches := replayOfThree(t)
 	var notes []string
 	_, err := Replay(ctx, js, batches, &ReplaySettings{
 		Progress: func(done, total int) {
@@ -302,21 +288,7 @@ func TestReplayInterruptedSaysWhatWasStored(t *testing.T) {
 	if testing.Short() {
 		t.Skip("starts a broker")
 	}
-	s := startTestServer(t, ServerConfig{MQTTPort: -1})
-	_, js := connectJS(t, s.ClientURL(), Auth{})
-	ctx, cancel := context.WithTimeout(context.Background(), 30*time.Second)
-	defer cancel()
-	if _, err := Setup(ctx, js, StreamSettings{Memory: true}); err != nil {
-		t.Fatal(err)
-	}
-	var batches []*Batch
-	for i := range 3 {
-		b := testBatch(10)
-		for j := range b.Time {
-			b.Time[j] += float64(i)
-		}
-		batches = append(batches, b)
-	}
+	_, ctx, js, batches := replayOfThree(t)
 	run, stop := context.WithCancel(ctx)
 	defer stop()
 	st, err := Replay(run, js, batches, &ReplaySettings{Progress: func(done, total int) {
@@ -333,4 +305,27 @@ func TestReplayInterruptedSaysWhatWasStored(t *testing.T) {
 	if st == nil || st.Batches != 1 {
 		t.Errorf("stats %+v, want 1 batch stored", st)
 	}
+}
+
+// replayOfThree starts a broker with the streams set up in memory and
+// gives it, a context that ends with the test (30 s at most), its JetStream
+// and three invented batches of 10 samples, a second apart (testBatch).
+func replayOfThree(t *testing.T) (*Server, context.Context, jetstream.JetStream, []*Batch) {
+	t.Helper()
+	s := startTestServer(t, ServerConfig{MQTTPort: -1})
+	_, js := connectJS(t, s.ClientURL(), Auth{})
+	ctx, cancel := context.WithTimeout(context.Background(), 30*time.Second)
+	t.Cleanup(cancel)
+	if _, err := Setup(ctx, js, StreamSettings{Memory: true}); err != nil {
+		t.Fatal(err)
+	}
+	var batches []*Batch
+	for i := range 3 {
+		b := testBatch(10)
+		for j := range b.Time {
+			b.Time[j] += float64(i)
+		}
+		batches = append(batches, b)
+	}
+	return s, ctx, js, batches
 }
