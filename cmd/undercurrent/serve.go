@@ -133,6 +133,7 @@ func runServe(ctx context.Context, o *serveOptions, args []string, stderr io.Wri
 	}
 	url := o.broker
 	var storeBytes int64
+	var storeCheck func() error
 	if url == "" {
 		if err := site.CheckEmbeddedBroker(); err != nil {
 			return err
@@ -150,6 +151,7 @@ func runServe(ctx context.Context, o *serveOptions, args []string, stderr io.Wri
 		defer srv.Shutdown()
 		url = srv.ClientURL()
 		storeBytes = srv.MaxStore()
+		storeCheck = srv.StoreWriteError
 		log.Info("embedded broker started", "nats", url, "mqtt", srv.MQTTAddr(), "store", o.data)
 		if open := site.OpenBroker(); open != "" {
 			log.Warn("the embedded broker listens off loopback with no accounts ([broker] allow_anonymous = true): anyone who can reach it may read, forge and delete all data, estimates, alarms and checkpoints; add [[broker.users]] or a [broker] token",
@@ -164,7 +166,7 @@ func runServe(ctx context.Context, o *serveOptions, args []string, stderr io.Wri
 		return err
 	}
 	defer nc.Close()
-	svc, err := live.New(live.Config{Site: site, Conn: nc, Worker: o.worker, HTTP: o.http, Logger: log, External: o.broker != "", StoreBytes: storeBytes})
+	svc, err := live.New(live.Config{Site: site, Conn: nc, Worker: o.worker, HTTP: o.http, Logger: log, External: o.broker != "", StoreBytes: storeBytes, StoreCheck: storeCheck})
 	if err != nil {
 		return err
 	}

@@ -14,7 +14,7 @@ import (
 // gateway had been told were stored. [broker] store_sync reaches the
 // server: "always" (every write synced before it is acknowledged) or a
 // duration; unset keeps nats-server's default; anything else is refused
-// naming the setting.
+// naming the setting and its line and column.
 func TestEmbeddedConfigStoreSync(t *testing.T) {
 	parse := func(line string) (*live.Site, error) {
 		return live.ParseSite("site.toml", []byte(`
@@ -56,8 +56,10 @@ name = "fenwick-lane"
 		}
 	}
 	for _, bad := range []string{`store_sync = "often"`, `store_sync = "-1s"`} {
-		if _, err := parse(bad); err == nil || !strings.Contains(err.Error(), "broker.store_sync") {
-			t.Errorf("%q: error %v, want one naming broker.store_sync", bad, err)
+		// Named at its line and column (line 5 of the text above, the
+		// value after "store_sync = "), as other site-file values are.
+		if _, err := parse(bad); err == nil || !strings.Contains(err.Error(), "site.toml:5:14: broker.store_sync") {
+			t.Errorf("%q: error %v, want one naming site.toml:5:14 and broker.store_sync", bad, err)
 		}
 	}
 }

@@ -129,6 +129,10 @@ func (s *Service) readyz(w http.ResponseWriter, r *http.Request) {
 		http.Error(w, "broker "+s.nc.Status().String(), http.StatusServiceUnavailable)
 		return
 	}
+	if failed := s.storeFailed.Load(); failed != nil {
+		http.Error(w, "broker store failed a write, restart serve: "+*failed, http.StatusServiceUnavailable)
+		return
+	}
 	if full := s.storeFull.Load(); full != nil {
 		http.Error(w, "broker store full: "+*full, http.StatusServiceUnavailable)
 		return

@@ -3,6 +3,7 @@ package live
 import (
 	"net"
 	"net/http"
+	"sync"
 	"time"
 
 	"golang.org/x/net/netutil"
@@ -26,6 +27,14 @@ type httpLimits struct {
 	// kernel's queue until one closes. It stays well under the process's
 	// file-descriptor limit, which the broker needs too.
 	MaxConns int
+	// PerAddr caps the open connections from one remote IP address;
+	// one past it is closed as soon as it is accepted. Without it one
+	// client holding MaxConns idle connections made every other client,
+	// /healthz and /readyz included, wait up to Idle. Loopback clients
+	// (the host's own probes, a reverse proxy on the host) are not
+	// capped by it unless CapLoopback.
+	PerAddr     int
+	CapLoopback bool
 }
 
 // defaultHTTPLimits are the limits of serve's HTTP API.
@@ -35,10 +44,12 @@ var defaultHTTPLimits = httpLimits{
 	Write:      2 * time.Minute,
 	Idle:       60 * time.Second,
 	MaxConns:   256,
+	PerAddr:    32,
 }
 
 // newHTTPServer returns the server of the HTTP API and the listener to
-// serve it on: ln with at most lim.MaxConns connections open.
+// serve it on: ln with at most lim.MaxConns connections open, and at most
+// lim.PerAddr from one address.
 func newHTTPServer(h http.Handler, ln net.Listener, lim httpLimits) (*http.Server, net.Listener) {
 	srv := &http.Server{
 		Handler:           h,
@@ -47,8 +58,67 @@ func newHTTPServer(h http.Handler, ln net.Listener, lim httpLimits) (*http.Serve
 		WriteTimeout:      lim.Write,
 		IdleTimeout:       lim.Idle,
 	}
+	if lim.PerAddr > 0 {
+		// Inside the total cap: a connection closed for its address
+		// does not take one of the MaxConns places.
+		ln = &perAddrListener{Listener: ln, max: lim.PerAddr, loopback: lim.CapLoopback, open: map[string]int{}}
+	}
 	if lim.MaxConns > 0 {
 		ln = netutil.LimitListener(ln, lim.MaxConns)
 	}
 	return srv, ln
+}
+
+// perAddrListener closes, as soon as it is accepted, a connection from a
+// remote IP address that already has max open; loopback addresses are
+// not counted unless loopback.
+type perAddrListener struct {
+	net.Listener
+	max      int
+	loopback bool
+
+	mu   sync.Mutex
+	open map[string]int // open connections per remote IP
+}
+
+func (l *perAddrListener) Accept() (net.Conn, error) {
+	for {
+		c, err := l.Listener.Accept()
+		if err != nil {
+			return nil, err
+		}
+		ta, ok := c.RemoteAddr().(*net.TCPAddr)
+		if !ok || (ta.IP.IsLoopback() && !l.loopback) {
+			return c, nil
+		}
+		ip := ta.IP.String()
+		l.mu.Lock()
+		if l.open[ip] >= l.max {
+			l.mu.Unlock()
+			c.Close()
+			continue
+		}
+		l.open[ip]++
+		l.mu.Unlock()
+		return &perAddrConn{Conn: c, l: l, ip: ip}, nil
+	}
+}
+
+// perAddrConn gives its address's place back when it is closed.
+type perAddrConn struct {
+	net.Conn
+	l    *perAddrListener
+	ip   string
+	once sync.Once
+}
+
+func (c *perAddrConn) Close() error {
+	c.once.Do(func() {
+		c.l.mu.Lock()
+		if c.l.open[c.ip]--; c.l.open[c.ip] <= 0 {
+			delete(c.l.open, c.ip)
+		}
+		c.l.mu.Unlock()
+	})
+	return c.Conn.Close()
 }

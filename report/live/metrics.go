@@ -27,6 +27,7 @@ type metrics struct {
 	queryReads  *prometheus.CounterVec   // query
 	leases      prometheus.Gauge
 	storeFull   prometheus.Gauge
+	storeFailed prometheus.Gauge
 	takeovers   prometheus.Counter
 	leaseLost   prometheus.Counter
 	discarded   *prometheus.CounterVec // asset
@@ -67,6 +68,8 @@ func newMetrics() *metrics {
 	m.leases = prometheus.NewGauge(prometheus.GaugeOpts{Name: "uc_assets_held", Help: "Assets this worker holds."})
 	m.storeFull = prometheus.NewGauge(prometheus.GaugeOpts{Name: "uc_store_full",
 		Help: "1 while the broker refuses this worker's writes (heartbeat, leases, estimates) for want of storage, else 0."})
+	m.storeFailed = prometheus.NewGauge(prometheus.GaugeOpts{Name: "uc_store_failed",
+		Help: "1 while a stream of the embedded broker's store has failed a write and refuses writes until serve is restarted, else 0."})
 	m.takeovers = prometheus.NewCounter(prometheus.CounterOpts{Name: "uc_asset_acquisitions_total",
 		Help: "Times this worker acquired an asset's lease."})
 	m.leaseLost = prometheus.NewCounter(prometheus.CounterOpts{Name: "uc_leases_lost_total",
@@ -74,7 +77,7 @@ func newMetrics() *metrics {
 	m.discarded = prometheus.NewCounterVec(prometheus.CounterOpts{Name: "uc_data_discarded_messages_total",
 		Help: "Stream sequences of the data stream that the broker removed (data_retention, data_max_bytes) before this asset's worker read them, by asset: data never processed. Counted as a range of sequences, which may include other assets' messages."}, []string{"asset"})
 	m.reg.MustRegister(m.messages, m.deadLetters, m.samples, m.overlap, m.implausible, m.windows, m.estimates, m.alarms,
-		m.stage, m.latency, m.pending, m.stalls, m.dataLag, m.queryReads, m.leases, m.storeFull, m.takeovers, m.leaseLost, m.discarded,
+		m.stage, m.latency, m.pending, m.stalls, m.dataLag, m.queryReads, m.leases, m.storeFull, m.storeFailed, m.takeovers, m.leaseLost, m.discarded,
 		collectors.NewGoCollector(), collectors.NewProcessCollector(collectors.ProcessCollectorOpts{}))
 	return m
 }

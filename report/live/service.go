@@ -52,6 +52,11 @@ type Config struct {
 	// external broker): a dead-letter bound found below its aim is kept
 	// by a restart on a store of the same size and found again on another.
 	StoreBytes int64
+	// StoreCheck, when set (the embedded broker: broker.Server's
+	// StoreWriteError), reports the streams of the broker's store that
+	// failed a write; such a stream refuses every write until the broker
+	// is restarted. The worker calls it at each lease round.
+	StoreCheck func() error
 	// OnEstimate, when set, is called after each estimate is acknowledged
 	// with the time since its window closed (load tests).
 	OnEstimate func(e *Estimate, latency time.Duration)
@@ -74,6 +79,7 @@ type Service struct {
 	memory       bool
 	external     bool
 	storeBytes   int64
+	storeCheck   func() error
 
 	// stopped holds, per asset this worker has stopped for want of a
 	// site file that says more (a commissioning needsSiteError), why.
@@ -109,6 +115,9 @@ type Service struct {
 	// succeeds: /readyz fails while the worker cannot heartbeat (its
 	// leases, in the same store, cannot be renewed either).
 	beatErr atomic.Pointer[string]
+	// storeFailed holds StoreCheck's error while the broker's store has
+	// a stream that failed a write (see checkStore).
+	storeFailed atomic.Pointer[string]
 }
 
 type holding struct {
@@ -142,7 +151,7 @@ func New(cfg Config) (*Service, error) {
 	}
 	s := &Service{site: cfg.Site, nc: cfg.Conn, id: cfg.Worker, log: cfg.Logger, met: newMetrics(),
 		newEstimator: cfg.NewEstimator, commissioner: cfg.Commissioner, onEstimate: cfg.OnEstimate,
-		httpAddr: cfg.HTTP, memory: cfg.Memory, external: cfg.External, storeBytes: cfg.StoreBytes, held: map[string]*holding{}, leftElsewhere: map[string]bool{}, ready: make(chan struct{})}
+		httpAddr: cfg.HTTP, memory: cfg.Memory, external: cfg.External, storeBytes: cfg.StoreBytes, storeCheck: cfg.StoreCheck, held: map[string]*holding{}, leftElsewhere: map[string]bool{}, ready: make(chan struct{})}
 	if s.id == "" {
 		host, _ := os.Hostname()
 		var b [3]byte
@@ -347,6 +356,7 @@ func (s *Service) leaseRound(ctx context.Context, order []string) {
 		s.beatErr.Store(nil)
 	}
 	s.noteStore(err)
+	s.checkStore()
 	workers := 1
 	if keys, err := st.Workers.Keys(rctx); err == nil && len(keys) > 0 {
 		workers = len(keys)
@@ -689,6 +699,38 @@ const storeFullAdvice = "the broker's store is full: no lease, estimate or senso
 	"Free disk space (the embedded broker without broker.store_max_bytes takes it up within 15 s), " +
 	"or raise broker.store_max_bytes, or lower broker.data_retention, broker.data_max_bytes or broker.dlq_max_bytes, and restart serve " +
 	"(a cluster's own limits are in the nats-server configuration)"
+
+// storeFailedAdvice is the ERROR logged once when the embedded broker's
+// store has a stream that failed a write.
+const storeFailedAdvice = "the broker's store failed a write and refuses every further write to that stream until serve is restarted: restart serve"
+
+// checkStore asks the broker (Config.StoreCheck) whether a stream of its
+// store failed a write. Such a stream refuses every write, with no answer
+// to the writer, until the broker is restarted: before, serve's heartbeats
+// and renewals only timed out, /readyz failed on the heartbeat if that was
+// the stream, and nothing said that a restart was needed. The first time
+// it is found it is logged at ERROR (once, not at every round), and while
+// it lasts /readyz fails and uc_store_failed is 1. Serve does not exit:
+// other broker faults (store full, an outage) are waited out the same
+// way, and the streams that still work go on being served.
+func (s *Service) checkStore() {
+	if s.storeCheck == nil {
+		return
+	}
+	err := s.storeCheck()
+	if err == nil {
+		if s.storeFailed.Swap(nil) != nil {
+			s.met.storeFailed.Set(0)
+			s.log.Info("the broker's store no longer reports a failed write")
+		}
+		return
+	}
+	msg := err.Error()
+	if s.storeFailed.Swap(&msg) == nil {
+		s.met.storeFailed.Set(1)
+		s.log.Error(storeFailedAdvice, "err", err)
+	}
+}
 
 // noteStore follows the outcome of a write to the broker: a write refused
 // for want of storage marks the store full (logged at ERROR, /readyz

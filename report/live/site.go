@@ -362,6 +362,15 @@ func ParseSite(name string, data []byte) (*Site, error) {
 	}
 	s.Path = name
 	if err := s.validate(); err != nil {
+		// A [service] or [broker] value refused here is named at its
+		// line and column, as the decoder's refusals are (decodeError).
+		var ke *keyError
+		if errors.As(err, &ke) {
+			table, key, _ := strings.Cut(ke.key, ".")
+			if line, col := tableKey(data, "["+table+"]", 0, key); line > 0 {
+				return nil, fmt.Errorf("live: %s:%d:%d: %w", name, line, col, err)
+			}
+		}
 		return nil, fmt.Errorf("live: %s: %w", name, err)
 	}
 	if err := s.checkCalibrations(data); err != nil {
@@ -392,7 +401,7 @@ func (s *Site) checkCalibrations(data []byte) error {
 				continue
 			}
 			where := s.Path
-			if line, col := sensorKey(data, k-1, "calibration"); line > 0 {
+			if line, col := tableKey(data, "[[asset.sensor]]", k-1, "calibration"); line > 0 {
 				where = fmt.Sprintf("%s:%d:%d", s.Path, line, col)
 			}
 			var pe *fs.PathError
@@ -429,13 +438,13 @@ func (s *Site) validate() error {
 		v   time.Duration
 	}{{"idle", s.Service.Idle.Duration}, {"resume_idle", s.Service.ResumeIdle.Duration}, {"max_ahead", s.Service.MaxAhead.Duration}, {"silent_after", s.Service.SilentAfter.Duration}} {
 		if d.v < 0 {
-			return fmt.Errorf("service.%s %v: want a positive duration", d.key, d.v)
+			return keyErrorf("service."+d.key, "service.%s %v: want a positive duration", d.key, d.v)
 		}
 	}
 	if s.Service.MaxMessageBytes < 0 {
 		// Before, a negative limit was kept and every sensor batch went to
 		// uc.dlq.oversized ("1450 bytes, limit -5").
-		return fmt.Errorf("service.max_message_bytes %d: want a positive size in bytes (0 or absent means 1 MiB)", s.Service.MaxMessageBytes)
+		return keyErrorf("service.max_message_bytes", "service.max_message_bytes %d: want a positive size in bytes (0 or absent means 1 MiB)", s.Service.MaxMessageBytes)
 	}
 	if s.Service.MaxMessageBytes == 0 {
 		s.Service.MaxMessageBytes = 1 << 20
@@ -444,10 +453,10 @@ func (s *Site) validate() error {
 		s.Service.Token = os.Getenv(s.Service.TokenEnv)
 	}
 	if s.Service.LeaseTTL.Duration < 500*time.Millisecond {
-		return fmt.Errorf("service.lease_ttl %v: want at least 500ms", s.Service.LeaseTTL.Duration)
+		return keyErrorf("service.lease_ttl", "service.lease_ttl %v: want at least 500ms", s.Service.LeaseTTL.Duration)
 	}
 	if _, _, err := net.SplitHostPort(s.Service.HTTP); err != nil && s.Service.HTTP != "-" {
-		return fmt.Errorf("service.http %q: want host:port", s.Service.HTTP)
+		return keyErrorf("service.http", "service.http %q: want host:port", s.Service.HTTP)
 	}
 	if s.Broker.Listen == "" {
 		s.Broker.Listen = "127.0.0.1:4222"
@@ -459,10 +468,10 @@ func (s *Site) validate() error {
 		s.Broker.Replicas = 1
 	}
 	if s.Broker.DataMaxBytes < 0 {
-		return fmt.Errorf("broker.data_max_bytes %d: want 0 (no bound) or more", s.Broker.DataMaxBytes)
+		return keyErrorf("broker.data_max_bytes", "broker.data_max_bytes %d: want 0 (no bound) or more", s.Broker.DataMaxBytes)
 	}
 	if s.Broker.StoreMaxBytes < 0 {
-		return fmt.Errorf("broker.store_max_bytes %d: want 0 (the server's default) or more", s.Broker.StoreMaxBytes)
+		return keyErrorf("broker.store_max_bytes", "broker.store_max_bytes %d: want 0 (the server's default) or more", s.Broker.StoreMaxBytes)
 	}
 	if _, _, err := s.Broker.SyncSetting(); err != nil {
 		return err
@@ -470,12 +479,12 @@ func (s *Site) validate() error {
 	minDLQ := s.dlqMin()
 	switch {
 	case s.Broker.DLQMaxBytes < 0:
-		return fmt.Errorf("broker.dlq_max_bytes %d: want 0 (the default) or more", s.Broker.DLQMaxBytes)
+		return keyErrorf("broker.dlq_max_bytes", "broker.dlq_max_bytes %d: want 0 (the default) or more", s.Broker.DLQMaxBytes)
 	case s.Broker.DLQMaxBytes > 0 && s.Broker.DLQMaxBytes < minDLQ:
-		return fmt.Errorf("broker.dlq_max_bytes %d: want at least %d, four times service.max_message_bytes (the most of a refused message a dead letter keeps)", s.Broker.DLQMaxBytes, minDLQ)
+		return keyErrorf("broker.dlq_max_bytes", "broker.dlq_max_bytes %d: want at least %d, four times service.max_message_bytes (the most of a refused message a dead letter keeps)", s.Broker.DLQMaxBytes, minDLQ)
 	}
 	if s.Broker.Replicas < 1 || s.Broker.Replicas > 5 {
-		return fmt.Errorf("broker.replicas %d: want 1 to 5", s.Broker.Replicas)
+		return keyErrorf("broker.replicas", "broker.replicas %d: want 1 to 5", s.Broker.Replicas)
 	}
 	if (s.Broker.TLSCert == "") != (s.Broker.TLSKey == "") {
 		return fmt.Errorf("broker: give tls_cert and tls_key together (a client certificate and its key), or neither")
@@ -834,8 +843,25 @@ func (b *BrokerConfig) SyncSetting() (always bool, every time.Duration, err erro
 	default:
 		d, err := time.ParseDuration(v)
 		if err != nil || d <= 0 {
-			return false, 0, fmt.Errorf("broker.store_sync %q: want \"always\" (sync every write before it is acknowledged) or a positive duration such as \"10s\" (sync that often)", b.StoreSync)
+			return false, 0, keyErrorf("broker.store_sync", "broker.store_sync %q: want \"always\" (sync every write before it is acknowledged) or a positive duration such as \"10s\" (sync that often)", b.StoreSync)
 		}
 		return false, d, nil
 	}
+}
+
+// keyError is a [service] or [broker] value that validate refuses after
+// decoding; key is its dotted name ("broker.store_sync"), by which
+// ParseSite finds its line and column in the file. Before, such values
+// were refused naming the file only.
+type keyError struct {
+	key string
+	err error
+}
+
+func (e *keyError) Error() string { return e.err.Error() }
+func (e *keyError) Unwrap() error { return e.err }
+
+// keyErrorf returns a keyError for key with the message format, args.
+func keyErrorf(key, format string, args ...any) error {
+	return &keyError{key: key, err: fmt.Errorf(format, args...)}
 }

@@ -68,6 +68,41 @@ func TestSiteValueErrorLine(t *testing.T) {
 	}
 }
 
+// TestSiteSettingErrorLine: a [service] or [broker] value that decodes
+// but is out of range (a store_sync that is neither "always" nor a
+// positive duration, a lease_ttl under 500 ms, a replica count over 5) is
+// refused at its own line and column, as values the decoder refuses are.
+// Before, the message named the site file only ("site.toml:
+// broker.store_sync \"often\": ...").
+func TestSiteSettingErrorLine(t *testing.T) {
+	for _, c := range []struct {
+		old, new, want string
+	}{
+		{`# store_sync = "always"`, `store_sync = "often"`, `broker.store_sync "often": want "always"`},
+		{`# store_sync = "always"`, `store_sync = "-1s"`, `broker.store_sync "-1s"`},
+		{`lease_ttl = "5s"`, `lease_ttl = "100ms"`, `service.lease_ttl 100ms: want at least 500ms`},
+		{`replicas = 1`, `replicas = 7`, `broker.replicas 7: want 1 to 5`},
+		{`max_message_bytes = 1048576`, `max_message_bytes = -5`, `service.max_message_bytes -5`},
+	} {
+		t.Run(c.new, func(t *testing.T) {
+			text, line := harrowFenText(t, c.old, c.new)
+			_, err := ParseSite("site.toml", []byte(text))
+			if err == nil {
+				t.Fatal("the bad value was accepted")
+			}
+			msg := err.Error()
+			col := strings.Index(strings.Split(text, "\n")[line-1], "=") + 3
+			at := "site.toml:" + strconv.Itoa(line) + ":" + strconv.Itoa(col) + ": "
+			if !strings.Contains(msg, at) {
+				t.Errorf("%q does not point at line %d column %d (%q)", msg, line, col, at)
+			}
+			if !strings.Contains(msg, c.want) {
+				t.Errorf("%q does not say %q", msg, c.want)
+			}
+		})
+	}
+}
+
 // TestSiteMissingCalibrationFound: a sensor's calibration file that does
 // not exist (or is not a calibration) is refused when the site file is
 // read, naming the site file, the line of the calibration key and the

@@ -142,16 +142,17 @@ func failingKey(data []byte, dotted string) (keyUse, bool) {
 	return keyUse{}, false
 }
 
-// sensorKey returns the 1-based line and the column of the value of key
-// in the index-th (0-based) [[asset.sensor]] table of the site file text,
-// 0, 0 when it is not there on a line of its own.
-func sensorKey(data []byte, index int, key string) (line, col int) {
+// tableKey returns the 1-based line and the column of the value of key
+// in the index-th (0-based) table under header ("[[asset.sensor]]",
+// "[broker]") of the site file text, 0, 0 when it is not there on a line
+// of its own.
+func tableKey(data []byte, header string, index int, key string) (line, col int) {
 	seen, in := -1, false
 	for n, raw := range bytes.Split(data, []byte("\n")) {
 		s := strings.TrimSpace(string(raw))
 		if strings.HasPrefix(s, "[") {
 			h := strings.TrimSpace(strings.SplitN(s, "#", 2)[0])
-			in = h == "[[asset.sensor]]"
+			in = h == header
 			if in {
 				seen++
 			}

@@ -67,7 +67,7 @@ func TestReadinessFailsWhileStoreFull(t *testing.T) {
 	if _, body := get("/readyz"); !strings.Contains(body, "store full") {
 		t.Errorf("readyz body %q does not say the store is full", body)
 	}
-	if _, m := get("/metrics"); !strings.Contains(m, "uc_store_full 1") {
+	if _, m := get("/metrics"); !strings.Contains(m, "\nuc_store_full 1\n") {
 		t.Error("uc_store_full is not 1 while the store is full")
 	}
 	st, err := js.Stream(ctx, broker.StreamEstimates)
@@ -81,7 +81,7 @@ func TestReadinessFailsWhileStoreFull(t *testing.T) {
 		code, _ := get("/readyz")
 		return code == http.StatusOK
 	})
-	if _, m := get("/metrics"); !strings.Contains(m, "uc_store_full 0") {
+	if _, m := get("/metrics"); !strings.Contains(m, "\nuc_store_full 0\n") {
 		t.Error("uc_store_full is not 0 once space is freed")
 	}
 	r.stop(t)
