@@ -16,11 +16,18 @@ import (
 )
 
 // Window is one demodulated AC window. B is the complex RMS field per axis
-// in nT (E, N, U), referenced to absolute time:
+// in nT (E, N, U), referenced to absolute time on the clock of the
+// result's frequency F (DemodResult.Freq, given or estimated):
 //
-//	b(t) = √2 Re(B exp(i 2π Freq t)),
+//	b(t) = √2 Re(B exp(i 2π (F t + (Freq - F)(t - Time)))),
 //
-// with t the log's time column.
+// with t the log's time column; Freq = F, b(t) = √2 Re(B exp(i 2π F t)),
+// unless EstimateFreq fitted the window at its own Freq. So a steady tone
+// at F has the same phase in every window, with or without EstimateFreq,
+// and a tone at F + δ turns by 360 δ degrees a second from window to
+// window (DemodResult.DriftHz; Demodulate warns when that turns a group's
+// phase by more than MaxTurnDegrees). The phasors of one group then
+// describe one steady field and may go to inverse.FitLines as one problem.
 type Window struct {
 	Time float64    // centre time, s
 	Pos  [3]float64 // mean position, m ENU
@@ -72,14 +79,27 @@ type DemodSettings struct {
 	// of advice on the time stamps, which are not at fault.
 	LeftOut                []float64
 	LeftOutWhy, LeftOutFix string
-	// Freq is the signal frequency, Hz. Zero estimates it from the log
-	// (spectral peak above MinFreq, refined by a four-parameter fit).
+	// Freq is the signal frequency, Hz. Zero estimates it from the log:
+	// from a spectral peak above MinFreq, every window of the log is
+	// fitted by the four-parameter fit (as with EstimateFreq) and the
+	// windows with a clear signal combined, those walked one way and those
+	// walked back apart so that the turn of the phase along a traverse
+	// over conductors of different phase cancels (it does not on a log
+	// walked one way only, and a warning says so);
+	// DemodResult.FreqSigma is the estimate's one-sigma. It costs a few
+	// extra passes over the log; a frequency known (the mains, a
+	// transmitter's) is better given.
 	Freq float64
 	// EstimateFreq re-estimates the frequency in every window by the
 	// four-parameter fit (IEEE Std 1057 / 1241), starting from Freq, with
 	// one frequency shared by the three axes and each axis weighted by its
 	// own noise (the package documentation); Window.FreqSigma carries each
-	// estimate's one-sigma.
+	// estimate's one-sigma. The window's phasors are fitted at its own
+	// frequency, so a frequency off Freq costs no amplitude, but are
+	// referenced to the clock of Freq at the window's centre (Window), so
+	// that windows stay phase-coherent: their phase still turns from window
+	// to window if Freq is off the field's frequency (DemodResult.DriftHz),
+	// and Freq should be the field's (given, or zero to estimate it).
 	EstimateFreq bool
 	// SkipFailedFreq, with EstimateFreq, leaves out a window whose
 	// four-parameter fit fails (its frequency runs off to zero or below,
@@ -166,11 +186,18 @@ type DemodResult struct {
 	// Harmonics holds, per window, the phasors of each requested harmonic
 	// (nil when none were asked for), referenced to absolute time like B.
 	Harmonics [][][3]complex128
-	// Freq is the nominal frequency used, Hz (given or estimated).
+	// Freq is the nominal frequency used, Hz (given or estimated). Every
+	// window's phasors are referenced to its clock (Window).
 	Freq float64
+	// FreqSigma is the one-sigma of Freq when it was estimated
+	// (DemodSettings.Freq zero), Hz; zero when Freq was given or the
+	// estimate has no sigma (a warning says so).
+	FreqSigma float64
 	// DriftHz is the median apparent frequency error seen from the phase
-	// advance between consecutive windows at a fixed frequency (zero with
-	// EstimateFreq, where each window carries its own Freq).
+	// advance between consecutive windows (of a clear signal, on the
+	// strongest axis) against the clock of Freq, with or without
+	// EstimateFreq. A warning names it when it turns the phase across the
+	// longest group by more than MaxTurnDegrees.
 	DriftHz float64
 	// Uniform and General count the windows demodulated with the shared
 	// precomputed basis and with a basis built from their own timestamps.
@@ -475,12 +502,16 @@ func DemodulateColumns(c *Columns, set *DemodSettings) (*DemodResult, error) {
 	fs := 1 / dt
 	res := &DemodResult{}
 	if ds.Freq == 0 {
-		f, err := estimateFreq(c, runs, dt, ds.MinFreq)
+		f, sigma, note, err := estimateFreq(c, runs, dt, &ds)
 		if err != nil {
 			return nil, err
 		}
-		ds.Freq = f
-		res.Warnings = append(res.Warnings, fmt.Sprintf("frequency not given: estimated %.4f Hz from the log", f))
+		ds.Freq, res.FreqSigma = f, sigma
+		if sigma > 0 {
+			res.Warnings = append(res.Warnings, fmt.Sprintf("frequency not given: estimated %s Hz %s", plusMinus(f, sigma), note))
+		} else {
+			res.Warnings = append(res.Warnings, fmt.Sprintf("frequency not given: estimated %.4f Hz %s", f, note))
+		}
 	}
 	res.Freq = ds.Freq
 	res.Nuisance = append([]float64(nil), ds.Nuisance...)
@@ -611,18 +642,45 @@ func DemodulateColumns(c *Columns, set *DemodSettings) (*DemodResult, error) {
 		res.Dropped += r.hi - end
 		// A window whose frequency fit failed is not lost to a break.
 		got[i] = len(res.Windows) - first + failed
-		if !ds.EstimateFreq {
-			d.phaseDrift(res.Windows[first:])
-		}
+		d.phaseDrift(res.Windows[first:])
 	}
-	if !ds.EstimateFreq && len(d.drifts) > 0 {
+	span, spanGroup := longestGroupSpan(res.Windows, res.Window)
+	if len(d.drifts) > 0 {
 		sort.Float64s(d.drifts)
 		res.DriftHz = d.drifts[len(d.drifts)/2]
-		if math.Abs(res.DriftHz) > ds.Band {
+		// The median's standard error, from the drifts' scaled median
+		// absolute deviation (1.2533 σ/√n for a normal sample).
+		dev := make([]float64, len(d.drifts))
+		for i, v := range d.drifts {
+			dev[i] = math.Abs(v - res.DriftHz)
+		}
+		se := 1.2533 * 1.4826 * median(dev, nil) / math.Sqrt(float64(len(dev)))
+		turn := 360 * math.Abs(res.DriftHz) * span
+		outside := !ds.EstimateFreq && math.Abs(res.DriftHz) > ds.Band
+		turns := turn > MaxTurnDegrees && math.Abs(res.DriftHz) > 3*se
+		switch {
+		case turns:
+			// Enough decimals to show the drift: 0.05 Hz or more in
+			// thousandths, as the amplitude band's warning.
+			dec := 4
+			if math.Abs(res.DriftHz) >= 0.05 {
+				dec = 3
+			}
+			w := fmt.Sprintf("the phase advances between windows as if the frequency were %.*f Hz, not %g Hz: across the longest group (%s%.3g s) the phasors' phase turns by %.0f°, so its phasors are not those of one steady field and a fit of them as one problem (inverse.FitLines) may misplace or miss the conductors; demodulate at %.*f Hz",
+				dec, ds.Freq+res.DriftHz, ds.Freq, groupLabel(spanGroup), span, turn, dec, ds.Freq+res.DriftHz)
+			if outside {
+				w += fmt.Sprintf(" (it is also outside the %.3f Hz band of a %g s window: amplitudes are biased low)", ds.Band, ds.Window)
+			}
+			res.Warnings = append(res.Warnings, w)
+		case outside:
 			res.Warnings = append(res.Warnings, fmt.Sprintf(
 				"the phase advances between windows as if the frequency were %.3f Hz, not %g Hz (outside the %.3f Hz band of a %g s window): amplitudes are biased low; estimate the frequency",
 				ds.Freq+res.DriftHz, ds.Freq, ds.Band, ds.Window))
 		}
+	}
+	if turn := 360 * res.FreqSigma * span; turn > MaxTurnDegrees {
+		res.Warnings = append(res.Warnings, fmt.Sprintf("the estimated frequency's sigma, %.2g Hz, alone turns the phase by up to %.0f° across the longest group (%s%.3g s): its phasors may not be those of one steady field; give the frequency if it is known",
+			res.FreqSigma, turn, groupLabel(spanGroup), span))
 	}
 	if d.outBand > 0 {
 		res.Warnings = append(res.Warnings, fmt.Sprintf(
@@ -647,6 +705,44 @@ func DemodulateColumns(c *Columns, set *DemodSettings) (*DemodResult, error) {
 		res.Warnings = append(res.Warnings, w)
 	}
 	return res, nil
+}
+
+// MaxTurnDegrees is the most by which the phase of a steady field may turn
+// across a group's windows before Demodulate warns: a frequency off by
+// DriftHz turns it by 360 DriftHz T degrees over a group lasting T
+// seconds (264° for 0.073 Hz over the demo's 10 s traverses), and the
+// group's phasors then are not those of one steady field.
+const MaxTurnDegrees = 5
+
+// longestGroupSpan returns the longest time from the start of a group's
+// first window to the end of its last (the stretch whose phasors go to one
+// fit), s, and that group.
+func longestGroupSpan(ws []Window, window float64) (float64, string) {
+	first, last := map[string]float64{}, map[string]float64{}
+	var order []string
+	for _, w := range ws {
+		if _, ok := first[w.Group]; !ok {
+			first[w.Group] = w.Time
+			order = append(order, w.Group)
+		}
+		last[w.Group] = w.Time
+	}
+	span, group := 0.0, ""
+	for _, g := range order {
+		if d := last[g] - first[g] + window; d > span {
+			span, group = d, g
+		}
+	}
+	return span, group
+}
+
+// groupLabel names a group for a message: "group T01, " (nothing for the
+// log's only, unnamed group).
+func groupLabel(g string) string {
+	if g == "" {
+		return ""
+	}
+	return "group " + g + ", "
 }
 
 // breakAt classifies the break before row i (the start of a run) into l:
@@ -1322,6 +1418,16 @@ func (d *demodulator) window(lo, hi int) error {
 	}
 	xty, beta := d.xty[:p], d.beta[:p]
 	dof := float64(hi - lo - p)
+	// phasor turns a window's cos/sin coefficients of harmonic h into a
+	// phasor on the clock of set.Freq (Window.B): at the window's own
+	// frequency about its centre with EstimateFreq, so that windows fitted
+	// at slightly different frequencies stay phase-coherent.
+	phasor := func(a, b float64, h int) complex128 {
+		if w.Freq == set.Freq {
+			return localToAbsolute(a, b, w.Freq, t0, h)
+		}
+		return centreToClock(a, b, w.Freq, set.Freq, t0, w.Time, h)
+	}
 	var freqInfo float64 // Σ q_k/s_k², the estimated frequency's information
 	for k := 0; k < 3; k++ {
 		y := c.B[k][lo:hi]
@@ -1411,7 +1517,7 @@ func (d *demodulator) window(lo, hi int) error {
 			freqInfo += fitQ[k] * df / rss
 		}
 		a, b := beta[0], beta[1]
-		w.B[k] = localToAbsolute(a, b, w.Freq, t0, 1)
+		w.B[k] = phasor(a, b, 1)
 		amp := math.Hypot(a, b)
 		g00, g01, g11 := tpl.ginv[0], tpl.ginv[1], tpl.ginv[p+1]
 		var v float64
@@ -1423,12 +1529,12 @@ func (d *demodulator) window(lo, hi int) error {
 		}
 		w.Sigma[k] = math.Sqrt(v / 2) // RMS scale
 		for j, h := range set.Harmonics {
-			harm[j][k] = localToAbsolute(beta[3+2*j], beta[4+2*j], w.Freq, t0, h)
+			harm[j][k] = phasor(beta[3+2*j], beta[4+2*j], h)
 		}
 		if tpl.slope {
 			q := slopeStart(set.Harmonics, set.Drift)
-			w.Slope[k] = localToAbsolute(beta[q], beta[q+1], w.Freq, t0, 1)
-			w.Curve[k] = 2 * localToAbsolute(beta[q+2], beta[q+3], w.Freq, t0, 1)
+			w.Slope[k] = phasor(beta[q], beta[q+1], 1)
+			w.Curve[k] = 2 * phasor(beta[q+2], beta[q+3], 1)
 		}
 	}
 	if freqInfo > 0 {
@@ -1707,11 +1813,224 @@ func (d *demodulator) phaseDrift(ws []Window) {
 	}
 }
 
-// estimateFreq finds the dominant frequency above minFreq: the peak of the
-// summed power spectrum of the three axes over the first long run (up to
-// 65536 samples), interpolated, then refined by the four-parameter fit
-// (freqFit, on the three axes jointly).
-func estimateFreq(c *Columns, runs []run, dt, minFreq float64) (float64, error) {
+// estimateFreq finds the dominant frequency above ds.MinFreq and its
+// one-sigma, Hz. A spectral peak (spectralPeak) is only the start: on a
+// walked log the phase of the field turns along a traverse where
+// conductors of different phase overlap (and flips where one axis's field
+// changes sign over a conductor), so the peak of one traverse's spectrum,
+// and a constant-amplitude sine fitted to the whole traverse, read that
+// turn as frequency (50.0733 Hz for the demo's 50 Hz, 4 of 4 seeds, found
+// in review). The estimate is instead the combination of the per-window
+// four-parameter fits of the whole log (windowFreq) from the peak, as the
+// locate command's frequency check does. note is a sentence for the
+// warning on how it was made; sigma is zero when it could not be had.
+func estimateFreq(c *Columns, runs []run, dt float64, ds *DemodSettings) (f, sigma float64, note string, err error) {
+	f0, err := spectralPeak(c, runs, dt, ds.MinFreq)
+	if err != nil {
+		return 0, 0, "", err
+	}
+	set := *ds
+	set.EstimateFreq, set.SkipFailedFreq = true, true
+	// The linear term keeps a walked DC gradient out of the windows, and
+	// the amplitude's change across the window is fitted apart from the
+	// frequency (the four-parameter fit's border columns).
+	set.Drift, set.ConstantAmplitude = true, false
+	set.Step = 0
+	if set.Window == 0 {
+		set.Window = 10 / f0
+	}
+	fallback := "from the spectrum's peak only (%s), which walking over conductors of different phase moves by up to a tenth of a hertz, and with no sigma: give the frequency if it is known"
+	// A window whose phase turns as the sensor walks has more than one
+	// stationary point of its frequency fit, and which it reaches depends
+	// on the start (219 of the demo's 1550 windows moved by up to 0.07 Hz
+	// between starts at 50 and 50.0733 Hz, the estimate by 0.0007 Hz), so
+	// the windows are fitted again from the estimate until it stays within
+	// its sigma of where they started.
+	var est windowEstimate
+	start := f0
+	for pass := 0; pass < maxFreqPasses; pass++ {
+		set.Freq = start
+		res, err := DemodulateColumns(c, &set)
+		if err != nil {
+			if pass > 0 {
+				break
+			}
+			return f0, 0, fmt.Sprintf(fallback, "the windows' frequency fits failed: "+strings.TrimPrefix(err.Error(), "calibrate: demodulate: ")), nil
+		}
+		e, ok := windowFreq(res.Windows)
+		if !ok {
+			if pass > 0 {
+				break
+			}
+			return f0, 0, fmt.Sprintf(fallback, fmt.Sprintf("fewer than %d windows have the field %d times its noise", freqMinWindows, freqWindowSNR)), nil
+		}
+		est = e
+		if math.Abs(e.freq-start) <= e.sigma {
+			break
+		}
+		start = e.freq
+	}
+	switch {
+	case est.bothWays:
+		note = fmt.Sprintf("from %d windows walked both ways", est.windows)
+	case est.still:
+		note = fmt.Sprintf("from %d windows", est.windows)
+	default:
+		note = fmt.Sprintf("from %d windows all walked one way, where the walk over conductors of different phase may move it by thousandths of a hertz beyond its sigma: give the frequency if it is known", est.windows)
+	}
+	return est.freq, est.sigma, note, nil
+}
+
+// plusMinus formats x ± sigma with sigma to two significant digits and x
+// to the same decimal place.
+func plusMinus(x, sigma float64) string {
+	d := max(0, 1-int(math.Floor(math.Log10(sigma))))
+	return fmt.Sprintf("%.*f ± %.*f", d, x, d, sigma)
+}
+
+// freqWindowSNR is the least |B|/Sigma on a window's strongest axis for its
+// frequency to count in windowFreq, and freqMinWindows the fewest such
+// windows (the locate command's frequency check uses the same).
+const (
+	freqWindowSNR  = 20
+	freqMinWindows = 3
+	// maxFreqPasses bounds estimateFreq's fits of the windows.
+	maxFreqPasses = 4
+)
+
+// windowEstimate is windowFreq's combination of the windows' frequencies.
+type windowEstimate struct {
+	freq, sigma float64
+	windows     int
+	// bothWays: windows walked both ways were combined; still: every
+	// window used stood still (or the log has no positions).
+	bothWays, still bool
+}
+
+// windowFreq combines the frequencies of windows fitted with EstimateFreq,
+// from those with a clear signal (freqWindowSNR). A window's phase also
+// turns as the sensor walks where conductors of different phase overlap,
+// the same way on every traverse walked the same way and the other way on
+// those walked back, so the windows are sorted by the sign of their travel
+// along the main walking direction (the principal axis of their horizontal
+// travels): with windows walked both ways the estimate is the mean of the
+// two ways' means, which cancels the walk's share; otherwise the mean of
+// all. ok is false with too few windows.
+func windowFreq(ws []Window) (windowEstimate, bool) {
+	var sxx, sxy, syy float64
+	for _, w := range ws {
+		x, y := w.Travel[0], w.Travel[1]
+		sxx += x * x
+		sxy += x * y
+		syy += y * y
+	}
+	th := 0.5 * math.Atan2(2*sxy, sxx-syy)
+	dx, dy := math.Cos(th), math.Sin(th)
+	var fs, wt [3][]float64 // still, one way, the other
+	var sg [3][]int         // the stretch walked one way each window is in
+	var all, allW []float64
+	var allS []int
+	stretch, prevC, prevG := 0, -1, ""
+	for _, w := range ws {
+		if !(w.FreqSigma > 0) || math.IsNaN(w.Freq) {
+			continue
+		}
+		snr := 0.0
+		for k := 0; k < 3; k++ {
+			if w.Sigma[k] > 0 {
+				snr = math.Max(snr, cmplx.Abs(w.B[k])/w.Sigma[k])
+			}
+		}
+		if snr < freqWindowSNR {
+			continue
+		}
+		c := 0
+		if math.Hypot(w.Travel[0], w.Travel[1]) >= 1e-3 {
+			c = 1
+			if w.Travel[0]*dx+w.Travel[1]*dy < 0 {
+				c = 2
+			}
+		}
+		if c != prevC || w.Group != prevG {
+			stretch++
+			prevC, prevG = c, w.Group
+		}
+		wgt := 1 / (w.FreqSigma * w.FreqSigma)
+		fs[c] = append(fs[c], w.Freq)
+		wt[c] = append(wt[c], wgt)
+		sg[c] = append(sg[c], stretch)
+		all = append(all, w.Freq)
+		allW = append(allW, wgt)
+		allS = append(allS, stretch)
+	}
+	// One centre for the cut of both ways: the median of all.
+	med := median(all, nil)
+	f1, s1, n1, ok1 := freqMean(fs[1], wt[1], sg[1], med)
+	f2, s2, n2, ok2 := freqMean(fs[2], wt[2], sg[2], med)
+	if ok1 && ok2 {
+		return windowEstimate{freq: (f1 + f2) / 2, sigma: math.Hypot(s1, s2) / 2, windows: n1 + n2, bothWays: true}, true
+	}
+	if len(fs[1])+len(fs[2]) == 0 {
+		f, s, n, ok := freqMean(fs[0], wt[0], sg[0], med)
+		return windowEstimate{freq: f, sigma: s, windows: n, still: true}, ok
+	}
+	f, s, n, ok := freqMean(all, allW, allS, med)
+	return windowEstimate{freq: f, sigma: s, windows: n}, ok
+}
+
+// freqMean is the inverse-variance mean of the frequencies fs with weights
+// ws (1/sigma²), seg naming the stretch walked one way each belongs to. A
+// window beyond 10 of its own sigmas from the median (a fit drawn to
+// another tone, or far off by the walk's turn of the phase) is left out.
+// The sigma is the noise's, sum(ws)^(-1/2), widened by the square root of
+// the larger reduced chi-square of the windows about the mean and, with
+// two stretches or more, of the stretches' means (traverses walked the
+// same way share the walk's share, so what they disagree by beyond their
+// noise is the frequency wandering or the traverses differing).
+func freqMean(fs, ws []float64, seg []int, med float64) (mean, sigma float64, n int, ok bool) {
+	if len(fs) < freqMinWindows {
+		return 0, 0, 0, false
+	}
+	keep := func(i int) bool { return math.Abs(fs[i]-med)*math.Sqrt(ws[i]) <= 10 }
+	var sw, swf float64
+	segW, segWF := map[int]float64{}, map[int]float64{}
+	for i, f := range fs {
+		if keep(i) {
+			sw += ws[i]
+			swf += ws[i] * f
+			segW[seg[i]] += ws[i]
+			segWF[seg[i]] += ws[i] * f
+			n++
+		}
+	}
+	if n < freqMinWindows {
+		return 0, 0, 0, false
+	}
+	mean = swf / sw
+	var c2 float64
+	for i, f := range fs {
+		if keep(i) {
+			c2 += (f - mean) * (f - mean) * ws[i]
+		}
+	}
+	red := c2 / float64(n-1)
+	if len(segW) >= 2 {
+		var cs float64
+		for k, w := range segW {
+			m := segWF[k] / w
+			cs += (m - mean) * (m - mean) * w
+		}
+		red = math.Max(red, cs/float64(len(segW)-1))
+	}
+	return mean, math.Sqrt(math.Max(1, red) / sw), n, true
+}
+
+// spectralPeak finds the dominant frequency above minFreq: the peak of the
+// summed power spectrum of the three axes over the longest run (up to
+// 65536 samples), Hann-windowed, interpolated by a parabola through the
+// log power. It starts estimateFreq's window fits, which converge from
+// within a fraction of 1/Window.
+func spectralPeak(c *Columns, runs []run, dt, minFreq float64) (float64, error) {
 	var r run
 	for _, x := range runs {
 		if x.hi-x.lo > r.hi-r.lo {
@@ -1764,20 +2083,7 @@ func estimateFreq(c *Columns, runs []run, dt, minFreq float64) (float64, error) 
 			delta = 0.5 * (a - g) / den
 		}
 	}
-	f0 := (float64(peak) + delta) * df
-	// The joint four-parameter fit of the three axes from f0, as in the
-	// windows of EstimateFreq.
-	ff := newFreqFit(nil, false, nil, false)
-	a, b := r.lo, r.lo+n
-	if ff.load(c.Time[a:b], [3][]float64{c.B[0][a:b], c.B[1][a:b], c.B[2][a:b]}, nil) >= 0 {
-		// Non-finite readings: the window holding them reports them.
-		return f0, nil
-	}
-	f, _, _, err := ff.fit(c.Time[a:b], f0, 30)
-	if err != nil || math.Abs(f-f0) > 2*df {
-		return f0, nil
-	}
-	return f, nil
+	return (float64(peak) + delta) * df, nil
 }
 
 // halfTravel returns the half-travel of rows [lo, hi) (see Window.Travel):

@@ -143,9 +143,22 @@
 // of the package's tests. An axis with no signal adds almost nothing (its
 // q_k grows with the square of its amplitude) and its noise, however
 // loud, only lowers its own weight; an axis that does not vary at all is
-// left out. A 50.1 Hz tone fitted at exactly 50 Hz over 1 s keeps about
-// 0.9835 of its amplitude (DOMAIN.md), which is why mains work should
-// estimate the frequency.
+// left out. A window fitted with EstimateFreq keeps its phasors on the
+// clock of the nominal frequency, at its own frequency about its centre
+// (Window), so that windows fitted a few thousandths of a hertz apart stay
+// phase-coherent.
+//
+// A 50.1 Hz tone fitted at exactly 50 Hz over 1 s keeps about 0.9835 of
+// its amplitude (DOMAIN.md), which EstimateFreq avoids; but a fit of many
+// windows needs the right frequency more: one off by δ turns the phase by
+// 360 δ T degrees across a group of T seconds (264° for 0.073 Hz over a
+// 10 s traverse), and the group's phasors are then not those of one steady
+// field, whether the windows were fitted at their own frequencies or not.
+// So mains work should demodulate at the field's frequency: given when it
+// is known, else estimated from the whole log (Freq zero, with its sigma
+// in DemodResult.FreqSigma), and checked by DemodResult.DriftHz, of which
+// Demodulate warns when it turns a group's phase by more than
+// MaxTurnDegrees.
 //
 // # Induction coils
 //

@@ -422,21 +422,35 @@ func TestDemodulateEstimateFreqMatchesReference(t *testing.T) {
 	}
 }
 
-func TestDemodulateFreqNotGivenIsFourParameterFit(t *testing.T) {
-	// With no frequency given, the spectral estimate is refined by the
-	// same joint fit on the first 2^k samples (16384 of 20000) of the
-	// three axes: the result must be the stationary point of the dense
-	// reference there, so refJointFit started from it stays put.
-	const tol = 1e-9 // relative; rounding and the sigma-tied stop
+func TestDemodulateFreqNotGiven(t *testing.T) {
+	// With no frequency given, the estimate combines the four-parameter
+	// fits of every window of the log (estimateFreq): on a steady
+	// 49.93 Hz tone (synthesised) it must lie within 3 of its sigmas of
+	// the tone, and the sigma must be the windows' combined one, the
+	// inverse-variance mean's sum(1/FreqSigma²)^(-1/2) over the windows
+	// fitted with EstimateFreq, not less (by 10%, for rounding) and not
+	// widened by half as much again (the windows' reduced chi-square
+	// widens it by its scatter about 1, some sqrt(2/49) for 50 windows).
 	c := acLog(rand.New(rand.NewPCG(33, 34)), 2000, 20000, 1.7e9, 49.93, testPhasors, 1)
 	res, err := DemodulateColumns(c, nil)
 	if err != nil {
 		t.Fatal(err)
 	}
-	const m = 16384
-	want, _ := refJointFit(t, c.Time[:m], [][]float64{c.B[0][:m], c.B[1][:m], c.B[2][:m]}, res.Freq, nil, false, false)
-	if d := math.Abs(res.Freq-want) / want; d > tol {
-		t.Errorf("estimated %.12f Hz, the joint four-parameter fit moves it to %.12f Hz (relative %.2g)", res.Freq, want, d)
+	if !(res.FreqSigma > 0) || math.Abs(res.Freq-49.93) > 3*res.FreqSigma {
+		t.Errorf("estimated %.7f ± %.7f Hz, the tone is 49.93 Hz", res.Freq, res.FreqSigma)
+	}
+	ws, err := DemodulateColumns(c, &DemodSettings{Freq: res.Freq, EstimateFreq: true, Drift: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	var info float64
+	for _, w := range ws.Windows {
+		info += 1 / (w.FreqSigma * w.FreqSigma)
+	}
+	if want := 1 / math.Sqrt(info); !(res.FreqSigma >= 0.9*want && res.FreqSigma <= 1.5*want) {
+		t.Errorf("sigma %.3g Hz, the windows' combined %.3g Hz", res.FreqSigma, want)
+	} else {
+		t.Logf("%.7f ± %.3g Hz, the windows' combined sigma %.3g Hz", res.Freq, res.FreqSigma, want)
 	}
 }
 

@@ -20,7 +20,13 @@ func source(s *ingest.Samples) string {
 	return s.Source
 }
 
+// errNilLog is the error of an adapter given a nil *ingest.Samples.
+var errNilLog = errors.New("calibrate: no log: the *ingest.Samples is nil")
+
 func checkField(s *ingest.Samples) error {
+	if s == nil {
+		return errNilLog
+	}
 	n := s.Len()
 	if len(s.Bx) != n || len(s.By) != n || len(s.Bz) != n {
 		return fmt.Errorf("calibrate: %s: field columns have %d, %d, %d rows, time has %d", source(s), len(s.Bx), len(s.By), len(s.Bz), n)
@@ -64,8 +70,12 @@ func (c *Calibration) Apply(s *ingest.Samples) error {
 // BaseCorrect subtracts the base station's departure from its reference,
 // interpolated to the rover's times, from rover's field in place. Both logs
 // must be in east-north-up (tilt-correct a sensor-frame rover first); an
-// IAGA-2002 base read by ingest is. See BaseCorrectColumns.
+// IAGA-2002 base read by ingest is. See BaseCorrectColumns. A nil rover or
+// base is an error.
 func BaseCorrect(rover, base *ingest.Samples, set *BaseSettings) (*BaseReport, error) {
+	if base == nil {
+		return nil, errors.New("calibrate: base correction: no base record: the base *ingest.Samples is nil")
+	}
 	if err := checkField(rover); err != nil {
 		return nil, err
 	}
@@ -96,6 +106,9 @@ func BaseCorrect(rover, base *ingest.Samples, set *BaseSettings) (*BaseReport, e
 // words unless it is read with ingest.WithIAGAFrameWarning(false), as a
 // caller that shows both should read it.
 func BaseFrameWarning(base *ingest.Samples) string {
+	if base == nil {
+		return ""
+	}
 	switch base.Meta["horizontal_frame"] {
 	case ingest.IAGABaselineNoDECBAS:
 		return fmt.Sprintf("base record %s holds observatory variation data in the baseline frame and its header gives no baseline declination (DECBAS): its east and north departures are turned from geographic axes by that declination", source(base))
@@ -111,7 +124,7 @@ func BaseFrameWarning(base *ingest.Samples) string {
 
 // Tilt rotates sensor-frame readings of s to east-north-up in place, from
 // its quaternion or roll/pitch/yaw columns (convention in EulerToENU and
-// QuatToENU), and sets s.Frame to ingest.FrameENU.
+// QuatToENU), and sets s.Frame to ingest.FrameENU. A nil s is an error.
 func Tilt(s *ingest.Samples, set *TiltSettings) error {
 	var ts TiltSettings
 	if set != nil {
@@ -182,7 +195,8 @@ func Tilt(s *ingest.Samples, set *TiltSettings) error {
 
 // Despike removes from s (every column) the rows the Hampel filter marks
 // as spikes on bx, by or bz, or that hold a missing field value, and says
-// how many. The moving window never crosses a change of group.
+// how many. The moving window never crosses a change of group. A nil s
+// is an error.
 func Despike(s *ingest.Samples, set *DespikeSettings) (*DespikeReport, error) {
 	if err := checkField(s); err != nil {
 		return nil, err
@@ -251,7 +265,7 @@ func compact[T any](col []T, drop []bool) []T {
 }
 
 // Demodulate runs DemodulateColumns on s (time, field, positions and
-// groups). See DemodulateColumns and DemodSettings.
+// groups). See DemodulateColumns and DemodSettings. A nil s is an error.
 func Demodulate(s *ingest.Samples, set *DemodSettings) (*DemodResult, error) {
 	if err := checkField(s); err != nil {
 		return nil, err

@@ -69,6 +69,26 @@ func localToAbsolute(a, b, freq, t0 float64, h int) complex128 {
 	return l * complex(c, -s)
 }
 
+// centreToClock turns local cos/sin coefficients a, b of harmonic h of a
+// fit at frequency fw with basis origin t0 into the complex RMS phasor on
+// the clock of frequency fc: B such that, about the time tc,
+//
+//	y(t) = √2 Re(B exp(i 2π h (fc t + (fw - fc)(t - tc)))),
+//
+// that is B = (a - i b)/√2 · exp(i 2π h (fw (tc - t0) - fc tc)). With
+// fw = fc it is localToAbsolute's phasor. Referenced at each window's
+// centre, windows fitted at frequencies a few thousandths of a hertz apart
+// keep the phase of a steady tone at fc: referenced to t = 0 at their own
+// frequencies, a spread of 0.002 Hz turned the phases of consecutive
+// windows of a Unix-time log by tens of degrees and more (found in review).
+func centreToClock(a, b, fw, fc, t0, tc float64, h int) complex128 {
+	hf := float64(h)
+	cyc := math.Mod(hf*fw*(tc-t0), 1) - math.Mod(hf*fc*tc, 1)
+	s, c := math.Sincos(2 * math.Pi * cyc)
+	l := complex(a, -b) / math.Sqrt2
+	return l * complex(c, s)
+}
+
 // SineSettings sets the model of FitSine and FitSine4. A nil *SineSettings
 // fits the plain three-parameter model.
 type SineSettings struct {
