@@ -36,7 +36,19 @@
 // edges) loses the samples at or before it, counted in
 // uc_overlap_samples_total, and the rest are filed; a batch with no sample
 // after it is dead-lettered as out-of-order, and one entirely inside
-// published windows as late. A message is
+// published windows as late. A batch of a sensor at a live pace (at most
+// 1.5 s of data per second of the broker's clock) that jumps more than
+// Grace plus a window past where that pace puts it, past the broker's
+// clock and past every other sensor (a gateway clock stepped forward) is
+// held, so that it cannot make the true data after it out-of-order: when
+// the sensor's next batch goes back before it, it is refused as
+// malformed, with a clock-jump alarm; when the sensor goes on in line
+// with it for Grace plus a window of data, it is processed as dated (with
+// the other sensors' held runs in line with it), with the alarm; when the
+// clock or another sensor's data reaches it, it is filed (as late, to the
+// dead letters, if its windows were closed meanwhile). A log replayed
+// faster than real time is not at a live pace, and one replayed slower
+// stays in line with its pace across a gap. A message is
 // dead-lettered once: the checkpoint counts it as examined as soon as its
 // dead letter is stored (and is written then if no window is open), and
 // a later holder that reads it again to rebuild an open window counts it

@@ -257,8 +257,14 @@ const (
 	// AlarmCommissioning: an asset's commissioning stopped for good (the
 	// asset's endpoint shows it as stopped), saying why.
 	AlarmCommissioning = "commissioning"
+	// AlarmClockJump: a sensor's batches started far ahead of both its
+	// own pace and the broker's clock (a gateway clock stepped forward),
+	// and were refused when its data went on from before them, or
+	// processed as dated when it went on in line with them (subject: the
+	// sensor; value: how far ahead of the broker's clock, s).
+	AlarmClockJump = "clock-jump"
 )
 
 // AlarmKinds lists every alarm kind the service raises; the alarms API
 // refuses any other kind.
-var AlarmKinds = []string{AlarmOverCurrent, AlarmImbalance, AlarmStep, AlarmSilent, AlarmStuck, AlarmSaturated, AlarmDegraded, AlarmImplausible, AlarmDataLost, AlarmInconsistent, AlarmCommissioning}
+var AlarmKinds = []string{AlarmOverCurrent, AlarmImbalance, AlarmStep, AlarmSilent, AlarmStuck, AlarmSaturated, AlarmDegraded, AlarmImplausible, AlarmDataLost, AlarmInconsistent, AlarmCommissioning, AlarmClockJump}

@@ -71,6 +71,21 @@ type assembler struct {
 	seen     []time.Time // wall time of each sensor's last batch in order
 	held     [][]heldBatch
 	rejected []heldBatch
+	// ahead holds, per sensor, a run of batches that jumped ahead of the
+	// sensor's own pace and of the broker's clock (see clockAhead); jumps
+	// lists what became of such runs, for the caller to alarm.
+	ahead [][]heldBatch
+	jumps []clockJump
+	// pace follows each sensor's data time against the broker's clock.
+	pace []paceTrack
+	// clock is the broker's clock when the batch being added was stored;
+	// zero leaves the clock-jump check out.
+	clock time.Time
+	// lateHeld lists held batches that were filed after every window they
+	// fall in was closed, for the caller to refuse as late; filed counts
+	// the samples of held batches filed (for the samples counter).
+	lateHeld []heldBatch
+	filed    int
 	// stale is how long (wall time) a sensor that sent nothing still counts
 	// in the quorum; 0 counts every sensor ever heard from.
 	stale   time.Duration
@@ -100,6 +115,8 @@ func newAssembler(window, grace time.Duration, sensors int) *assembler {
 	a.dtN = make([]int, sensors)
 	a.seen = make([]time.Time, sensors)
 	a.held = make([][]heldBatch, sensors)
+	a.ahead = make([][]heldBatch, sensors)
+	a.pace = make([]paceTrack, sensors)
 	for i := range a.water {
 		a.water[i] = math.Inf(-1)
 	}
@@ -117,6 +134,7 @@ const (
 	late                 // every sample falls in a closed window
 	outOfRange           // a time too large for a window index
 	heldBack             // far ahead of the other sensors: held (see assembler)
+	heldAhead            // jumped ahead of its own pace and the broker's clock: held (see clockAhead)
 )
 
 // maxWindowIndex bounds |t/L|: window indices and the times computed
@@ -132,6 +150,12 @@ type heldBatch struct {
 	subj string    // message subject and payload, for a dead letter
 	data []byte
 	why  string // why it was given up
+	// clock marks a batch held as ahead of the broker's clock (see
+	// clockAhead); ahead is how far ahead of it the run started, s, and
+	// stored the broker's clock when it was stored (Unix s).
+	clock  bool
+	ahead  float64
+	stored float64
 }
 
 // maxHeld bounds the batches held per sensor; older ones are given up.
@@ -171,6 +195,10 @@ func (a *assembler) addMsg(s int, seq uint64, b *broker.Batch, now time.Time, su
 		b = trimBefore(b, a.water[s])
 		a.overlap = n - b.Len()
 	}
+	var held bool
+	if b, res, held = a.clockAhead(s, seq, b, now, subj, data); held {
+		return res, 0
+	}
 	if q, k := a.others(now, s); k >= 2 && b.Time[0] > q+a.grace+a.L {
 		// Far ahead of every other sensor: either this sensor's clock
 		// jumped or all sensors resumed after a gap and this one came
@@ -195,6 +223,9 @@ func (a *assembler) addMsg(s int, seq uint64, b *broker.Batch, now time.Time, su
 		a.reject(s, len(h), fmt.Sprintf("the sensor's next batch, from %v, is in line with the other sensors: its clock jumped", b.Time[0]))
 	}
 	res, dropped = a.accept(s, seq, b, now)
+	if !a.clock.IsZero() {
+		a.pace[s].note(b.Time[b.Len()-1], unixSeconds(a.clock), a.paceSpan())
+	}
 	a.release(now)
 	return res, dropped
 }
@@ -232,6 +263,7 @@ func (a *assembler) takeRejected() []heldBatch {
 // release files the held batches that are no longer ahead of the other
 // sensors, and gives up those held for longer than stale.
 func (a *assembler) release(now time.Time) {
+	a.releaseAhead(now)
 	for again := true; again; {
 		again = false
 		for s, h := range a.held {
@@ -246,7 +278,7 @@ func (a *assembler) release(now time.Time) {
 			}
 			a.held[s] = nil
 			for _, x := range h {
-				a.accept(s, x.seq, x.b, now)
+				a.fileHeld(s, x, now, "it was held as far ahead of every other sensor, and the other sensors caught up with it")
 			}
 			again = true
 		}
@@ -439,6 +471,11 @@ func (a *assembler) resumeSeq() uint64 {
 		m = min(m, w.minSeq)
 	}
 	for _, h := range a.held {
+		for _, x := range h {
+			m = min(m, x.seq)
+		}
+	}
+	for _, h := range a.ahead {
 		for _, x := range h {
 			m = min(m, x.seq)
 		}

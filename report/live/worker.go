@@ -546,7 +546,9 @@ func (w *assetWorker) handle(m jetstream.Msg) error {
 		}
 	}
 	t0 = time.Now()
+	w.asm.clock = md.Timestamp
 	res, _ := w.asm.addMsg(si, seq, b, t0, subj, data)
+	w.asm.clock = time.Time{}
 	met.stage.WithLabelValues("assemble").Observe(time.Since(t0).Seconds())
 	switch res {
 	case outOfRange:
@@ -557,6 +559,17 @@ func (w *assetWorker) handle(m jetstream.Msg) error {
 		met.messages.WithLabelValues(w.asset.Name, "held").Inc()
 		w.log.Warn("batch held: far ahead of every other sensor", "subject", subj, "seq", seq, "start", b.Time[0])
 		return w.refuseRejected(t0)
+	case heldAhead:
+		w.noteData(md.Timestamp, t0)
+		met.messages.WithLabelValues(w.asset.Name, "held").Inc()
+		if h := w.asm.ahead[si]; len(h) == 1 {
+			w.log.Warn("batch held: it jumps ahead of the sensor's pace and of the broker's clock (a gateway clock stepped forward?); refused if the sensor's next batch goes back before it, processed as dated if the sensor goes on in line with it",
+				"subject", subj, "seq", seq, "start", unixString(b.Time[0]), "stored", md.Timestamp.UTC().Format(time.RFC3339Nano))
+		}
+		if err := w.refuseRejected(t0); err != nil {
+			return err
+		}
+		return w.closeReady(t0, 0)
 	case outOfOrder:
 		return w.deadLetter(broker.ReasonOutOfOrder, subj, seq, data,
 			fmt.Errorf("live: %s: batch from %v to %v is not after the sensor's last sample (%v)", subj, b.Time[0], b.Time[b.Len()-1], w.asm.water[si]))
@@ -865,15 +878,79 @@ func (w *assetWorker) publishAlarmAck(al Alarm, id string, count bool) (*jetstre
 	return ack, nil
 }
 
-// refuseRejected dead-letters the batches the assembler held back as far
-// ahead of the other sensors and then gave up.
+// refuseRejected dead-letters the batches the assembler held (far ahead
+// of the other sensors, or of their sensor's pace and the broker's clock)
+// and then gave up, or filed after their windows were published (as
+// late), counts the samples of held batches filed, and raises the
+// clock-jump alarms (noteJumps). A held batch is dead-lettered even when
+// a checkpoint written while it was held counts it as examined (its
+// dead letter's message id keeps a takeover from storing it twice within
+// the broker's duplicate window).
 func (w *assetWorker) refuseRejected(now time.Time) error {
 	for _, h := range w.asm.takeRejected() {
 		b := h.b
-		err := w.deadLetter(broker.ReasonMalformed, h.subj, h.seq, h.data,
-			fmt.Errorf("live: %s: batch from %v (%s) to %v started more than grace plus a window ahead of every other sensor of the asset and was given up: %s",
+		what := "more than grace plus a window ahead of every other sensor of the asset"
+		if h.clock {
+			what = "more than grace plus a window ahead of the broker's clock and of where the sensor's pace put it"
+		}
+		err := w.storeDeadLetter(broker.ReasonMalformed, h.subj, h.seq, h.data,
+			fmt.Errorf("live: %s: batch from %v (%s) to %v started %s and was given up: %s",
+				h.subj, b.Time[0], unixString(b.Time[0]), b.Time[b.Len()-1], what, h.why))
+		if err != nil {
+			return err
+		}
+	}
+	lateHeld, samples := w.asm.takeFiled()
+	w.svc.met.samples.WithLabelValues(w.asset.Name).Add(float64(samples))
+	for _, h := range lateHeld {
+		b := h.b
+		err := w.storeDeadLetter(broker.ReasonLate, h.subj, h.seq, h.data,
+			fmt.Errorf("live: %s: samples from %v (%s) to %v fall in windows already published: %s",
 				h.subj, b.Time[0], unixString(b.Time[0]), b.Time[b.Len()-1], h.why))
 		if err != nil {
+			return err
+		}
+	}
+	return w.noteJumps()
+}
+
+// noteJumps raises a clock-jump alarm for each run of a sensor's batches
+// held as ahead of the broker's clock (see clockAhead) that was given up
+// or filed as dated, and logs those the clock reached. The alarm goes in
+// the window after the last published one (or the asset's earliest
+// unpublished one), as data-lost does, so that the alarm history stays
+// in window order.
+func (w *assetWorker) noteJumps() error {
+	for _, j := range w.asm.takeJumps() {
+		sensor := w.asset.Sensors[j.sensor].Name
+		if !j.given && !j.confirmed {
+			w.log.Info("batches held as ahead of the broker's clock filed: "+j.why, "sensor", sensor, "from", unixString(j.from), "batches", j.batches)
+			continue
+		}
+		var msg string
+		if j.given {
+			msg = fmt.Sprintf("sensor %s of asset %s sent %d batch(es) dated %s to %s, %.0f s ahead of the broker's clock and out of line with its own pace; they were refused (uc.dlq.malformed), not processed: %s",
+				sensor, w.asset.Name, j.batches, unixString(j.from), unixString(j.to), j.ahead, j.why)
+		} else {
+			why := j.why
+			if j.along >= 0 {
+				why = fmt.Sprintf("it is in line with sensor %s, whose jump was confirmed", w.asset.Sensors[j.along].Name)
+			}
+			msg = fmt.Sprintf("sensor %s of asset %s sends data dated %.0f s ahead of the broker's clock (from %s), a jump from its own pace; it kept to that clock (%s), so its data is processed as dated: check the gateway's clock, as data it sends once its clock is set back will be refused as out of order until the new times pass the jumped ones",
+				sensor, w.asset.Name, j.ahead, unixString(j.from), why)
+		}
+		w.log.Warn("sensor clock jump", "sensor", sensor, "ahead_s", j.ahead, "given_up", j.given, "from", unixString(j.from), "batches", j.batches)
+		L := w.asset.Window.Seconds()
+		idx := w.ck.Window + 1
+		if w.ck.Done == 0 {
+			idx = w.asm.index(j.from)
+			if k, ok := w.firstUnpublished(); ok && k < idx {
+				idx = k
+			}
+		}
+		win := &window{Index: idx, Start: float64(idx) * L, End: float64(idx+1) * L}
+		al := w.proc.alarm(win, AlarmClockJump, sensor, j.ahead, w.asm.aheadMargin(), msg)
+		if err := w.publishAlarm(al, w.msgID(idx)+"/"+al.Kind+"/"+sensor+"/"+strconv.FormatFloat(j.from, 'f', -1, 64)); err != nil {
 			return err
 		}
 	}
@@ -938,6 +1015,12 @@ func (w *assetWorker) deadLetter(reason, subj string, seq uint64, data []byte, c
 		w.svc.met.messages.WithLabelValues(w.asset.Name, "skipped").Inc()
 		return nil
 	}
+	return w.storeDeadLetter(reason, subj, seq, data, cause)
+}
+
+// storeDeadLetter is deadLetter without the check for a message an
+// earlier holder examined.
+func (w *assetWorker) storeDeadLetter(reason, subj string, seq uint64, data []byte, cause error) error {
 	w.svc.met.messages.WithLabelValues(w.asset.Name, "dead-letter").Inc()
 	w.svc.met.deadLetters.WithLabelValues(reason).Inc()
 	w.log.Warn("message refused", "reason", reason, "seq", seq, "err", cause)
