@@ -225,6 +225,11 @@ func WithOrigin(o Geodetic) Option {
 // reading.
 func WithOriginMean() Option { return func(c *config) { c.originMode = originMean } }
 
+// WithOriginFirst puts the ENU origin at the log's first reading, the
+// default; given after WithOrigin or WithOriginMean, it undoes them (a
+// look at a log's first reading with otherwise the same options).
+func WithOriginFirst() Option { return func(c *config) { c.originMode = originFirst } }
+
 // WithAllowMissing accepts empty cells, NaN and Arrow nulls in numeric
 // columns as missing values (NaN). By default they are errors.
 func WithAllowMissing(ok bool) Option { return func(c *config) { c.allowMissing = ok } }

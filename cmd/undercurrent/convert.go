@@ -88,6 +88,13 @@ Examples:
 			if err := rf.checkIAGA("IN", in); err != nil {
 				return err
 			}
+			originWarns, err := rf.checkOriginNear([]string{in}, opts)
+			if err != nil {
+				return err
+			}
+			for _, w := range originWarns {
+				fmt.Fprintf(stderr, "warning: %s\n", w)
+			}
 			if rf.dropMissing {
 				// Rows are dropped in memory: the log is read whole.
 				s, warns, err := rf.readLog(ctx, in, opts, false)

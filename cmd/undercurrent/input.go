@@ -31,6 +31,9 @@ type readFlags struct {
 	header     []string
 	frame      string
 	origin     string
+	// fixedOrigin is --origin LAT,LON[,HEIGHT] as options read it; nil
+	// for first or mean.
+	fixedOrigin *ingest.Geodetic
 	// iagaBaseline leaves IAGA-2002 variation data in the baseline frame.
 	iagaBaseline bool
 	decimalComma bool
@@ -188,6 +191,7 @@ func (f *readFlags) options(fs *pflag.FlagSet) ([]ingest.Option, error) {
 		}
 		opts = append(opts, ingest.WithFrame(fr))
 	}
+	f.fixedOrigin = nil
 	switch o := strings.TrimSpace(f.origin); o {
 	case "first", "":
 	case "mean":
@@ -205,10 +209,12 @@ func (f *readFlags) options(fs *pflag.FlagSet) ([]ingest.Option, error) {
 			}
 			v[i] = x
 		}
-		if v[0] < -90 || v[0] > 90 || v[1] < -180 || v[1] > 360 {
-			return nil, usageErrorf("--origin %q: latitude or longitude out of range", o)
+		if err := checkOriginValues(o, v); err != nil {
+			return nil, err
 		}
-		opts = append(opts, ingest.WithOrigin(ingest.Geodetic{Lat: v[0], Lon: v[1], H: v[2]}))
+		g := ingest.Geodetic{Lat: v[0], Lon: v[1], H: v[2]}
+		f.fixedOrigin = &g
+		opts = append(opts, ingest.WithOrigin(g))
 	}
 	if f.dropMissing {
 		opts = append(opts, ingest.WithAllowMissing(true))

@@ -72,6 +72,10 @@ Examples:
 			if err := rf.checkIAGA("FILE", args[0]); err != nil {
 				return err
 			}
+			originWarns, err := rf.checkOriginNear(args, opts)
+			if err != nil {
+				return err
+			}
 			// A log without time (a calibration log, which calibrate
 			// reads) is described too, saying it has none.
 			opts = append(opts, ingest.WithTimeOptional(true))
@@ -95,6 +99,7 @@ Examples:
 			for i, w := range in.Warnings {
 				in.Warnings[i] = cliWording(w)
 			}
+			in.Warnings = append(in.Warnings, originWarns...)
 			if asJSON {
 				enc := json.NewEncoder(stdout)
 				enc.SetIndent("", "  ")

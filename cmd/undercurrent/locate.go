@@ -74,6 +74,9 @@ type locateOptions struct {
 	readOpts []ingest.Option
 	// baseOpts are the ingest options for the base log (readFlags.baseOptions).
 	baseOpts []ingest.Option
+	// originWarns warn of an --origin some km from a log's first reading
+	// (checkOriginNear; run sets them).
+	originWarns []string
 
 	// set by check
 	nCount int // 0 = auto
@@ -414,6 +417,9 @@ Examples:
 			if err := o.read.checkIAGAAll("LOG", args); err != nil {
 				return err
 			}
+			if o.originWarns, err = o.read.checkOriginNear(args, o.readOpts); err != nil {
+				return err
+			}
 			o.baseOpts = o.read.baseOptions(fs)
 			start := time.Now()
 			// On a terminal, a stage line until the fitting's bar (if
@@ -655,6 +661,7 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 	}
 	sv := &survey{doc: doc, ac: o.freq > 0}
 	defer func() { err = withWarnings(err, sv.alerts, sv.warnings) }()
+	sv.warnings = append(sv.warnings, o.originWarns...)
 	if len(o.baseUnits) > 0 && o.base == "" {
 		return nil, usageErrorf("--base-unit needs --base")
 	}

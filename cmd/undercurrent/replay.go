@@ -6,7 +6,9 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"slices"
 	"strconv"
+	"strings"
 	"time"
 
 	"github.com/nats-io/nats.go/jetstream"
@@ -14,6 +16,7 @@ import (
 
 	"undercurrent/ingest"
 	"undercurrent/ingest/broker"
+	"undercurrent/report/live"
 )
 
 type replayOptions struct {
@@ -60,7 +63,11 @@ partial, and the refused batches fill the dead-letter streams): then
 give --resume, which sends only each sensor's batches after the last
 sample the broker holds for it. With --now the log is shifted by whole minutes, so windows line
 up as in the log; times more than --max-ahead ahead of the clock are held
-back until they are not, since the pipeline refuses them.
+back until they are not, since the pipeline refuses them (a hold of a
+second or more is said once, with the time it lasts until). With serve
+running, an --asset its site file does not list is refused (the
+pipeline would dead-letter every batch); with none running, replay
+cannot tell.
 
 Replay reads the data stream's state and waits for the broker's
 acknowledgement of every batch (JetStream), so its account must be allowed
@@ -121,11 +128,23 @@ func runReplay(ctx context.Context, o *replayOptions, fs *pflag.FlagSet, args []
 	if err := broker.ValidToken(o.asset); err != nil {
 		return usageErrorf("--asset: %v", err)
 	}
-	if o.speed < 0 {
-		return usageErrorf("--speed %v: want 0 or more", o.speed)
+	if o.speed < 0 || math.IsNaN(o.speed) || math.IsInf(o.speed, 0) {
+		return usageErrorf("--speed %v: want a finite rate, 0 or more (0: as fast as the broker acknowledges)", o.speed)
+	}
+	if math.IsNaN(o.shift) || math.IsInf(o.shift, 0) {
+		return usageErrorf("--shift %v: want a finite number of seconds", o.shift)
 	}
 	if o.batch <= 0 {
 		return usageErrorf("--batch %v: want a positive duration", o.batch)
+	}
+	if o.maxAhead < 0 {
+		return usageErrorf("--max-ahead %v: want 0 (no limit) or a positive duration", o.maxAhead)
+	}
+	if o.wait < 0 {
+		return usageErrorf("--wait %v: want 0 (look once) or a positive duration", o.wait)
+	}
+	if o.maxBytes < 0 {
+		return usageErrorf("--max-message-bytes %d: want 0 (no limit) or a positive size", o.maxBytes)
 	}
 	enc := map[string]string{"json": broker.ContentJSON, "arrow": broker.ContentArrow}[o.format]
 	if enc == "" {
@@ -163,6 +182,9 @@ func runReplay(ctx context.Context, o *replayOptions, fs *pflag.FlagSet, args []
 	if t0 := batches[0].Time[0] + set.Shift; t0 < minReplayTime {
 		return fmt.Errorf("%s: the first time, %.3f s, is before 2000-01-01 (Unix seconds): the pipeline refuses such times; make the log start now with --now, or add seconds with --shift", args[0], t0)
 	}
+	if t1 := batches[len(batches)-1].Time[len(batches[len(batches)-1].Time)-1] + set.Shift; t1 > maxReplayTime {
+		return fmt.Errorf("%s: the last time, %s s, is after 9999-12-31 (Unix seconds): no clock reaches it; give a --shift that brings the log to the clock's years (--now starts it now)", args[0], strconv.FormatFloat(t1, 'g', 6, 64))
+	}
 	nc, err := broker.Connect(o.broker, "undercurrent replay", broker.Auth{User: o.user, Password: o.password, Token: o.token, UserFrom: "--user",
 		CAFile: o.tlsCA, CertFile: o.tlsCert, KeyFile: o.tlsKey, CredsFile: o.creds})
 	if err != nil {
@@ -174,6 +196,9 @@ func runReplay(ctx context.Context, o *replayOptions, fs *pflag.FlagSet, args []
 		return err
 	}
 	if err := waitForStream(ctx, js, o.wait); err != nil {
+		return err
+	}
+	if err := checkAssetServed(ctx, js, o.asset); err != nil {
 		return err
 	}
 	st, err := broker.Replay(ctx, js, batches, set)
@@ -232,6 +257,28 @@ func checkBatchBytes(path string, batches []*broker.Batch, format string, limit 
 // minReplayTime is 2000-01-01T00:00:00Z in Unix seconds: the pipeline
 // refuses earlier sample times as malformed.
 const minReplayTime = 946684800
+
+// maxReplayTime is 9999-12-31T23:59:59Z in Unix seconds: a later time
+// (a --shift of 1e300) is no clock's, and a wait for it overflows.
+const maxReplayTime = 253402300799
+
+// checkAssetServed refuses an --asset that no running serve's site file
+// lists, when the running workers' heartbeats tell (live.ServedAssets):
+// the pipeline would send every batch to its dead-letter stream while
+// replay reported success. With no serve running (or one of an earlier
+// version) it cannot be told, and the replay goes on.
+func checkAssetServed(ctx context.Context, js jetstream.JetStream, asset string) error {
+	c, cancel := context.WithTimeout(ctx, 5*time.Second)
+	defer cancel()
+	assets, known, err := live.ServedAssets(c, js)
+	if err != nil && ctx.Err() != nil {
+		return ctx.Err()
+	}
+	if err != nil || !known || slices.Contains(assets, asset) {
+		return nil // not readable (an account without the bucket's rights): not told
+	}
+	return fmt.Errorf("--asset %s: the site file of the running serve does not list it (its assets: %s): the pipeline would refuse every batch, into its dead-letter stream; check the name, or add the asset to the site file and restart serve", asset, strings.Join(assets, ", "))
+}
 
 // replayAheadMargin keeps replayed times this far inside --max-ahead, for
 // the time a batch takes to reach the broker and for clocks a little apart.

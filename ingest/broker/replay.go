@@ -238,12 +238,13 @@ func Replay(ctx context.Context, js jetstream.JetStream, batches []*Batch, set *
 		}
 	}
 	seen := map[string]bool{}
+	toldHold := false
 	wall0 := time.Now()
 	data0 := batches[0].Time[len(batches[0].Time)-1]
 	for i, b := range batches {
 		last := b.Time[len(b.Time)-1]
 		if rs.Speed > 0 {
-			due := wall0.Add(time.Duration((last - data0) / rs.Speed * float64(time.Second)))
+			due := wall0.Add(secondsDuration((last - data0) / rs.Speed))
 			if d := time.Until(due); d > 0 {
 				select {
 				case <-ctx.Done():
@@ -253,9 +254,16 @@ func Replay(ctx context.Context, js jetstream.JetStream, batches []*Batch, set *
 			}
 		}
 		if rs.MaxAhead > 0 {
-			ahead := time.Duration((last + rs.Shift - float64(time.Now().UnixNano())/1e9) * float64(time.Second))
-			if d := ahead - rs.MaxAhead; d > 0 {
+			now := time.Now()
+			ahead := last + rs.Shift - float64(now.UnixNano())/1e9
+			if d := secondsDuration(ahead - rs.MaxAhead.Seconds()); d > 0 {
 				st.HeldBack++
+				if !toldHold && d >= holdNoticeAfter && rs.Notify != nil {
+					// Said once: a log shifted ahead of the clock
+					// would otherwise wait without a word.
+					rs.Notify(holdNotice(now, ahead-rs.MaxAhead.Seconds(), i, len(batches)))
+					toldHold = true
+				}
 				select {
 				case <-ctx.Done():
 					return st, ctx.Err()
@@ -302,6 +310,50 @@ func Replay(ctx context.Context, js jetstream.JetStream, batches []*Batch, set *
 	}
 	sort.Strings(st.Sensors)
 	return st, nil
+}
+
+// holdNoticeAfter is the shortest hold (MaxAhead) that Replay says it
+// makes: a log shifted to now and replayed faster than real time is
+// held a fraction of a second per batch, which the stats count.
+const holdNoticeAfter = time.Second
+
+// holdNotice says that batch i of n is held for hold seconds from now,
+// until the pipeline's clock limit (MaxAhead) lets it through: "holding
+// until 15:04:05 UTC (2.0 h): ...", with the date when it is not today's.
+func holdNotice(now time.Time, hold float64, i, n int) string {
+	now = now.UTC()
+	sec, frac := math.Modf(float64(now.UnixNano())/1e9 + hold)
+	until := time.Unix(int64(sec), int64(frac*1e9)).UTC()
+	at := until.Format("15:04:05 UTC")
+	if until.YearDay() != now.YearDay() || until.Year() != now.Year() {
+		at = until.Format("2006-01-02 15:04:05 UTC")
+	}
+	var how string
+	switch {
+	case hold < 120:
+		how = fmt.Sprintf("%.0f s", hold)
+	case hold < 2*3600:
+		how = fmt.Sprintf("%.0f min", hold/60)
+	case hold < 48*3600:
+		how = fmt.Sprintf("%.1f h", hold/3600)
+	default:
+		how = fmt.Sprintf("%.0f days", hold/86400)
+	}
+	return fmt.Sprintf("holding until %s (%s): the log is ahead of the clock, its batch %d of %d beyond --max-ahead, which the pipeline would refuse; check --shift, or give --now to start the log now", at, how, i+1, n)
+}
+
+// secondsDuration is s seconds as a Duration, held within the Duration's
+// range (about 292 years) where a plain conversion of a larger float is
+// undefined.
+func secondsDuration(s float64) time.Duration {
+	switch ns := s * float64(time.Second); {
+	case math.IsNaN(ns) || ns <= 0:
+		return 0
+	case ns >= math.MaxInt64:
+		return math.MaxInt64
+	default:
+		return time.Duration(ns)
+	}
 }
 
 // storedUpTo returns, per sensor of batches, the last sample time of the

@@ -334,6 +334,56 @@ type workerBeat struct {
 	Assets []string `json:"assets"`
 }
 
+// ServedAssets reads the running workers' heartbeats (the workers
+// bucket, whose entries expire a lease TTL after a worker stops) and
+// returns the assets their site files list, sorted. known is false when
+// that cannot be told: no running worker, a worker of an earlier version
+// (its beat a time only), or no workers bucket. A sender (replay) can so
+// tell an asset name the pipeline would dead-letter every batch of.
+func ServedAssets(ctx context.Context, js jetstream.JetStream) (assets []string, known bool, err error) {
+	kv, err := js.KeyValue(ctx, broker.BucketWorkers)
+	if err != nil {
+		if errors.Is(err, jetstream.ErrBucketNotFound) {
+			return nil, false, nil
+		}
+		return nil, false, err
+	}
+	w, err := kv.WatchAll(ctx, jetstream.IgnoreDeletes())
+	if err != nil {
+		return nil, false, err
+	}
+	defer w.Stop()
+	seen := map[string]bool{}
+	workers := 0
+	for {
+		var e jetstream.KeyValueEntry
+		select {
+		case <-ctx.Done():
+			return nil, false, ctx.Err()
+		case e = <-w.Updates():
+		}
+		if e == nil {
+			break // the entries held now have all been read
+		}
+		var b workerBeat
+		if json.Unmarshal(e.Value(), &b) != nil || len(b.Assets) == 0 {
+			return nil, false, nil // a worker of an earlier version
+		}
+		workers++
+		for _, a := range b.Assets {
+			seen[a] = true
+		}
+	}
+	if workers == 0 {
+		return nil, false, nil
+	}
+	for a := range seen {
+		assets = append(assets, a)
+	}
+	sort.Strings(assets)
+	return assets, true, nil
+}
+
 func (s *Service) heartbeat(now time.Time) []byte {
 	b := workerBeat{At: now.UTC().Format(time.RFC3339Nano)}
 	for _, a := range s.site.Assets {
