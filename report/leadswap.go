@@ -25,12 +25,15 @@ import (
 // leadBySwap therefore follows one track. The groups' conductor 1 lines
 // are joined into tracks (the lines agree within crossAngle in plan and
 // one passes within continuityReach of the other carried on, allowing for
-// the carried line's direction sigma: onTrackOf); the track
-// with the most groups is the route's, on a tie the one carrying the
-// larger current at some traverse (the conductor whose current changes;
-// the cable beside it carries the same the whole way). A group on another
-// track takes as conductor 1 its line on the route's track when the
-// nearest group already on it (by the readings' centres) shows the lead
+// the carried line's direction sigma: onTrackOf), nearest first, but not
+// two groups whose lines show the lead exchanged (below), even under
+// continuityReach apart, nor any join that would put two such groups on
+// one track; the track with the most groups is the route's, on a tie the
+// one carrying the larger current at some traverse (the conductor whose
+// current changes; the cable beside it carries the same the whole way). A
+// group on another track takes as conductor 1 its line on the route's
+// track when the nearest group already on it (by the readings' centres),
+// or failing that the nearest whose lines kept the two apart, shows the lead
 // changed between two parallel lines that both run on: the two groups'
 // conductor 1 lines are parallel (swapParallel), this group has a line
 // parallel to the other's conductor 1 on its track (allowing for that
@@ -182,6 +185,28 @@ func swapFree(f *Fit) bool {
 	return true
 }
 
+// splitPartner is the other line of f's same-way split of its conductor 1
+// (sameWayOf) where the split alone keeps f's lines from being reordered
+// (swapFree); -1 for none. Between two cables 1.5 m apart, where the
+// current of one changes, the fit of the traverse 5 m from the change
+// took the two as a split, 18.5 ± 3.1 and 16.3 ± 3.5 A: the neighbours
+// either side resolve them, and the exchange makes the other share
+// conductor 1 (withLead drops the split).
+func splitPartner(f *Fit) int {
+	r := f.Result
+	sw := sameWayOf(r)
+	if sw == nil || len(r.SameWay) != 1 {
+		return -1
+	}
+	c, rc := *f, *r
+	rc.SameWay = nil
+	c.Result = &rc
+	if !swapFree(&c) {
+		return -1
+	}
+	return sw.Lines[1]
+}
+
 // indexedLine is a further line of a fit and its index there.
 type indexedLine struct {
 	j int
@@ -225,18 +250,33 @@ func further(f *Fit, ac bool) []indexedLine {
 // 3 m on the far side of the feeder, where m may lie where the service
 // did at a; the heights part them).
 func swapPick(g, a *Fit, lg, la swapLine, ac bool) int {
+	return swapPickOf(lg, la, further(g, ac), further(a, ac), ac)
+}
+
+// swapPickOf is swapPick given the further lines mg of g and na of a.
+func swapPickOf(lg, la swapLine, mg, na []indexedLine, ac bool) int {
+	if len(mg) == 0 || len(na) == 0 {
+		return -1
+	}
 	u := la.plan
 	type place struct{ x, z float64 }
-	mg, na := further(g, ac), further(a, ac)
-	pa, pg := []place{{0, la.point[2]}}, []place{{0, lg.point[2]}}
-	for _, n := range na {
-		if n.parallelTo(la) {
-			pa = append(pa, place{n.aside(la, u), n.point[2]})
+	var pa, pg []place
+	// places sets pa and pg, once a pair of lines is to be compared
+	// (most pairs of groups have none).
+	places := func() {
+		if pa != nil {
+			return
 		}
-	}
-	for _, m := range mg {
-		if m.parallelTo(la) {
-			pg = append(pg, place{m.aside(lg, u), m.point[2]})
+		pa, pg = []place{{0, la.point[2]}}, []place{{0, lg.point[2]}}
+		for _, n := range na {
+			if n.parallelTo(la) {
+				pa = append(pa, place{n.aside(la, u), n.point[2]})
+			}
+		}
+		for _, m := range mg {
+			if m.parallelTo(la) {
+				pg = append(pg, place{m.aside(lg, u), m.point[2]})
+			}
 		}
 	}
 	// misfit sums the distances of g's lines, g's conductor 1 put at s
@@ -258,7 +298,7 @@ func swapPick(g, a *Fit, lg, la swapLine, ac bool) int {
 		}
 		return sum
 	}
-	pick, least := -1, misfit(0)
+	pick, least := -1, math.NaN()
 	for _, m := range mg {
 		if !m.carries(la, lg, ac) {
 			continue
@@ -268,12 +308,28 @@ func swapPick(g, a *Fit, lg, la swapLine, ac bool) int {
 			if !n.carries(lg, la, ac) {
 				continue
 			}
-			// n must lie beyond continuityReach of a's conductor 1 in the
-			// cross-section (across and in height, as misfit measures), or
-			// it would continue it as well.
 			xn := n.aside(la, u)
-			if math.Hypot(xn, n.point[2]-la.point[2]) <= continuityReach || math.Abs(xm+xn) > continuityReach {
+			if math.Abs(xm+xn) > continuityReach {
 				continue
+			}
+			// n within continuityReach of a's conductor 1 in the
+			// cross-section (across and in height, as misfit measures)
+			// is on its track as well: lg continues n, not la, only
+			// where the exchanged places match within half the two
+			// lines' spacing d at a (lg moved onto n's place lies
+			// within d/2 of it, so beyond d/2 of la's, and m within
+			// d/2 of la's). Two cables 1.5 m apart across and 0.3 m
+			// in depth, each the stronger along half the route, were
+			// never exchanged while n had to lie beyond the reach:
+			// conductor 1 jumped cables with a false 9.6 A rise and
+			// both cables were said to end (found in review).
+			if d := math.Hypot(xn, n.point[2]-la.point[2]); d <= continuityReach &&
+				!(math.Abs(lg.point[2]-n.point[2]) < d/2 && math.Hypot(xm+xn, m.point[2]-la.point[2]) < d/2) {
+				continue
+			}
+			if pa == nil {
+				places()
+				least = misfit(0)
 			}
 			if f := misfit(xn); f < least {
 				pick, least = m.j, f
@@ -324,15 +380,66 @@ func leadBySwap(fits []Fit, ac bool) {
 		}
 		return i
 	}
+	// Not where the lead changed between two lines side by side that
+	// both run on (swapPick either way): the two groups are kept apart,
+	// and the pairs joined nearest first, none that would put two groups
+	// kept apart on one track. Lines of cables under continuityReach apart
+	// lie on each other's track: joined, all groups made one track and
+	// none was exchanged (two cables 1.5 m apart, found in review), and a
+	// group between them (a fit taking the two as one line, 0.5 m from
+	// each, where the current of one changes) joined both tracks.
+	type pairing struct {
+		a, b int
+		d    float64
+	}
+	var joins []pairing
+	apart := map[int][]int{}
+	more := make([][]indexedLine, n)
+	for _, i := range used {
+		more[i] = further(&fits[i], ac)
+	}
 	for x, a := range used {
 		for _, b := range used[x+1:] {
 			la, lb := leads[a], leads[b]
-			if !planAgree(la.plan, lb.plan) {
+			if !planAgree(la.plan, lb.plan) || !lb.onTrackOf(la) && !la.onTrackOf(lb) {
 				continue
 			}
-			if lb.onTrackOf(la) || la.onTrackOf(lb) {
-				root[find(a)] = find(b)
+			if swapPickOf(lb, la, more[b], more[a], ac) >= 0 || swapPickOf(la, lb, more[a], more[b], ac) >= 0 {
+				apart[a], apart[b] = append(apart[a], b), append(apart[b], a)
+				continue
 			}
+			d := math.Min(pointToLine(lb.point, la.point, la.dir3)+lb.drift(la), pointToLine(la.point, lb.point, lb.dir3)+la.drift(lb))
+			joins = append(joins, pairing{a, b, d})
+		}
+	}
+	if len(apart) > 0 {
+		sort.SliceStable(joins, func(x, y int) bool { return joins[x].d < joins[y].d })
+	}
+	// kept lists each track's groups kept apart from some other, by root.
+	kept := map[int][]int{}
+	for g := range apart {
+		kept[g] = []int{g}
+	}
+	for _, j := range joins {
+		ra, rb := find(j.a), find(j.b)
+		if ra == rb {
+			continue
+		}
+		clash := false
+		for _, g := range kept[ra] {
+			for _, h := range apart[g] {
+				if find(h) == rb {
+					clash = true
+				}
+			}
+		}
+		if clash {
+			continue
+		}
+		root[ra] = rb
+		if len(kept[ra]) > 0 {
+			kept[rb] = append(kept[rb], kept[ra]...)
+			delete(kept, ra)
 		}
 	}
 	type track struct {
@@ -371,6 +478,18 @@ func leadBySwap(fits []Fit, ac bool) {
 	main := keys[0]
 	planDist := func(a, b int) float64 {
 		return math.Hypot(cent[a][0]-cent[b][0], cent[a][1]-cent[b][1])
+	}
+	// apartFromMain reports whether group i's track holds a group kept
+	// apart from one on the route's track.
+	apartFromMain := func(i int) bool {
+		for _, g := range kept[find(i)] {
+			for _, h := range apart[g] {
+				if find(h) == main {
+					return true
+				}
+			}
+		}
+		return false
 	}
 	// Each open group's nearest group on the route's track, kept up to
 	// date as groups join it.
@@ -418,16 +537,40 @@ func leadBySwap(fits []Fit, ac bool) {
 		if !lg.parallelTo(la) {
 			continue
 		}
+		// The exchange, where g's lines may be reordered, or its
+		// conductor 1 is split with the line the exchange takes (the
+		// split's two shares are the two lines: splitPartner).
+		swap := swapPick(g, a, lg, la, ac)
+		if swap < 0 {
+			// The nearest may not show it (a fit taking the two cables
+			// as one line, where the current of one changes): the
+			// nearest of those on the route's track whose exchange
+			// with g kept their tracks apart.
+			var by []int
+			for _, h := range apart[gi] {
+				if find(h) == main {
+					by = append(by, h)
+				}
+			}
+			sort.SliceStable(by, func(x, y int) bool { return planDist(gi, by[x]) < planDist(gi, by[y]) })
+			for _, h := range by {
+				if swap = swapPick(g, &fits[h], lg, leads[h], ac); swap >= 0 {
+					break
+				}
+			}
+		}
 		pick := -1
-		if swapFree(g) {
-			pick = swapPick(g, a, lg, la, ac)
+		if swapFree(g) || swap > 0 && swap == splitPartner(g) {
+			pick = swap
 		}
 		if pick < 0 {
 			// On the route's track where its neighbour carries it on,
 			// though not joined to it at first (its own line, or the
 			// neighbour's, too loosely fixed in direction to carry
-			// far): it guides the groups beyond it.
-			if pointToLine(lg.point, la.point, la.dir3) <= continuityReach {
+			// far): it guides the groups beyond it. Not where its lead
+			// changed and stays (its lines not to be reordered), nor
+			// where its track was kept apart from the route's.
+			if swap < 0 && !apartFromMain(gi) && pointToLine(lg.point, la.point, la.dir3) <= continuityReach {
 				onMain[gi] = true
 				join(gi)
 			}
