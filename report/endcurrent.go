@@ -103,3 +103,65 @@ func firstWalkName(w string) string {
 	}
 	return w + " (the first walk)"
 }
+
+// endBefore returns the current that conductor 1 carries before an end
+// found next to its used end station at chainage (an end finding of
+// inverse/route ends.go: a current-step warning with the "current before"
+// and "depth before" values, its bracket starting or ending there), as
+// that warning gives it: allowing, where it could, for the share of the
+// end's field that the stations nearest the end miss. Those stations'
+// own currents read low: the summary gave "9.996 A at chainage 0 m and
+// 7.800 A at 28 m", a 2.2 A loss, beside the warning that the conductor
+// carries 10.042 A up to its end (found in review). ok is false when no
+// end lies next to it; past is true when the end lies at greater
+// chainage than the station.
+func endBefore(d *Document, chainage float64) (current Value, past, ok bool) {
+	const near = 0.5 // m: the bracket's end is the station's own chainage
+	for i := range d.Findings {
+		f := &d.Findings[i]
+		if f.Kind != "current-step" || f.Conductor != 0 || f.Lone {
+			continue
+		}
+		if math.Abs(f.ChainageFrom-chainage) > near && math.Abs(f.ChainageTo-chainage) > near {
+			continue
+		}
+		var cur Value
+		var hasCur, hasDepth bool
+		for _, v := range f.Values {
+			switch v.Name {
+			case "current before":
+				cur, hasCur = v, true
+			case "depth before":
+				hasDepth = true
+			}
+		}
+		if hasCur && hasDepth {
+			return cur, math.Abs(f.ChainageFrom-chainage) <= near, true
+		}
+	}
+	return Value{}, false, false
+}
+
+// endClause words the current at route r's used end station a for the
+// summary: its own current (endCurrent) and chainage, after at
+// ("chainage " for the first), or, next to an end
+// (endBefore), the current before the end as its warning gives it, with
+// a's own low reading beside it.
+func endClause(d *Document, r *Route, a *Station, at string) string {
+	own := fmt.Sprintf("%s at %s%.0f m", endCurrent(d, r, a), at, a.Chainage)
+	c, past, ok := endBefore(d, a.Chainage)
+	if !ok || d.Signal.Mode == SignalAC {
+		return own
+	}
+	lv, ls := r.endLevel(a)
+	side := "before"
+	if past {
+		side = "past"
+	}
+	// Signed as the station's current, along the route.
+	s := fmt.Sprintf("%s A up to the conductor's end %s chainage %.0f m, as the end's warning gives it", pm(math.Copysign(math.Abs(c.Value), lv), c.Sigma), side, a.Chainage)
+	if math.Abs(math.Abs(lv)-math.Abs(c.Value)) > 2*math.Hypot(ls, c.Sigma) {
+		s += fmt.Sprintf(" (a station near an end reads only part of its field: %s's own current reads %s A)", r.endStation(a).Key, pm(lv, ls))
+	}
+	return s
+}

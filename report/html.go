@@ -5,6 +5,7 @@ import (
 	"html/template"
 	"io"
 	"math"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -56,6 +57,18 @@ type view struct {
 	// CoverNA is true when the ground is not known, so the table's cover
 	// column reads "n/a".
 	CoverNA bool
+	// CoverHead and DepthHead head the table's cover and depth columns,
+	// each naming what it is measured from; DepthCol is false when the
+	// depths are below the ground given (--reference-z), where the depth
+	// is the cover and the cover column alone gives it. The cover column
+	// comes first: a crew acts on the first depth it reads, and a depth
+	// below the sensors headed "Depth" read 0.30 m deeper than the cover
+	// in the demo (found in review).
+	CoverHead, DepthHead string
+	DepthCol             bool
+	// DepthCaption opens the depth plots' captions: what the plot's
+	// depths are measured from.
+	DepthCaption string
 	// InputsNA is true when an input has no readings to count.
 	InputsNA bool
 	Counts   string
@@ -135,12 +148,17 @@ type trackView struct {
 }
 
 type findingRow struct {
-	N        int
+	// N is the finding's number, as the plan view marks it; for the row
+	// that gathers the slight misfits (minorMisfitRow), theirs.
+	N        string
 	Severity string
 	Kind     string
 	Where    string
 	Message  string
 	Values   string
+	// Items are the gathered findings' own messages, each with its
+	// number (minorMisfitRow).
+	Items []string
 }
 
 // groupRow is one line of the table of groups; the per-source columns hold
@@ -184,6 +202,15 @@ func newView(d *Document) (*view, error) {
 	v.ShowSite = d.Site != "" && d.Site != v.Title
 	_, groundKnown := d.cover(0)
 	v.CoverNA = !groundKnown
+	v.CoverHead, v.DepthHead, v.DepthCol = "Cover (m)", "Depth below sensors (m)", true
+	switch {
+	case d.DepthReference.Kind == DepthBelowGround:
+		v.CoverHead, v.DepthCol = "Cover: depth below ground (m)", false
+		v.GroupCols--
+	case !groundKnown:
+		v.CoverHead = "Cover (m)*"
+	}
+	v.DepthCaption = depthCaption(d)
 	for _, in := range d.Inputs {
 		v.InputsNA = v.InputsNA || in.Rows == 0
 	}
@@ -213,15 +240,22 @@ func newView(d *Document) (*view, error) {
 	}
 	v.Settings = settingRows(d.Settings)
 	v.summarise()
+	minor := minorMisfits(d)
 	for i, f := range d.Findings {
+		if len(minor) > 1 && slices.Contains(minor, i) {
+			continue
+		}
 		var vals []string
 		for _, x := range f.Values {
 			vals = append(vals, valueText(x))
 		}
 		v.Findings = append(v.Findings, findingRow{
-			N: i + 1, Severity: f.Severity, Kind: strings.ReplaceAll(f.Kind, "-", " "),
+			N: strconv.Itoa(i + 1), Severity: f.Severity, Kind: strings.ReplaceAll(f.Kind, "-", " "),
 			Where: v.where(f), Message: f.Message, Values: strings.Join(vals, "; "),
 		})
+	}
+	if len(minor) > 1 {
+		v.Findings = append(v.Findings, minorMisfitRow(d, minor))
 	}
 	for i := range d.Groups {
 		r := v.groupRow(&d.Groups[i])
@@ -323,6 +357,19 @@ func depthRefText(d *Document) string {
 		s += "; sensor height above ground not given, so cover is not computed"
 	}
 	return s
+}
+
+// depthCaption says what the depth plots draw: the cover (depth below
+// ground, the ground at 0) when the ground is known, else the depth below
+// the sensors, with the cover shallower by their height (alongPlot).
+func depthCaption(d *Document) string {
+	switch h := d.DepthReference.SensorHeight; {
+	case d.DepthReference.Kind == DepthBelowGround:
+		return "Fitted cover (depth below the ground, which is at 0) per group with ± two standard deviations."
+	case h > 0:
+		return fmt.Sprintf("Fitted cover (depth below the ground, which is at 0) per group with ± two standard deviations: the fitted depth below the sensors less their %.2f m height above the ground.", h)
+	}
+	return "Fitted depth below the sensors per group with ± two standard deviations: not the cover, which is less by the sensors' height above the ground (not given)."
 }
 
 // coverSigmaText says what the cover sigmas include; empty when cover is not
@@ -460,6 +507,11 @@ func (v *view) groupRow(g *Group) groupRow {
 		// terminal's summary counts it ("marked for a base gap").
 		r.StatusShort = "sound; marked for review"
 		r.Status = r.StatusShort + ": " + g.Problem
+	case g.Problem != "" && !v.D.groupUsed(g):
+		// Converged but left out of the route (past the conductor's end,
+		// for one): "used with care" said the opposite of the findings.
+		r.StatusShort = "poor or ambiguous, not used"
+		r.Status = r.StatusShort + ": " + g.Problem
 	case g.Problem != "":
 		// Converged and used, but poor or ambiguous: the route's findings
 		// say "used with care".
@@ -481,6 +533,22 @@ func (v *view) groupRow(g *Group) groupRow {
 		case objects > 0:
 			r.Status += ": a magnetised object and no conductor (fitted as a point dipole)"
 		}
+	}
+	if !g.OK {
+		// A failed fit's current, depth, cover, direction and place mean
+		// nothing (its problem says so): printed as numbers, a cover of
+		// 0.636 m read as a plausible cable 14 m past the cable's end
+		// (found in review). Dashes, and the Fit column says why.
+		dash := []string{"–"}
+		r.Current = []string{"fit failed, no value"}
+		r.Depth, r.Cover, r.Azimuth, r.Position = dash, dash, dash, dash
+		if v.D.Signal.Mode == SignalAC {
+			r.Phase = dash
+		}
+		if len(v.D.Conductors) > 0 {
+			r.Conductor = dash
+		}
+		return r
 	}
 	var cur, ph, dep, cov, az []string
 	sum := v.D.summedStation(g)
@@ -615,6 +683,87 @@ func (v *view) groupRow(g *Group) groupRow {
 	return r
 }
 
+// minorMisfits lists the indices in d.Findings of the notes on fits
+// that miss their readings by more than the noise allows but by a small
+// share of their signal (poor-fit findings of severity info, route
+// quality.go): 12 of the demo's 18 findings were such notes, listed one
+// by one, and they buried the note on a magnetised object among them
+// (found in review).
+func minorMisfits(d *Document) []int {
+	var out []int
+	for i := range d.Findings {
+		if f := &d.Findings[i]; f.Kind == "poor-fit" && f.Severity == SeverityInfo {
+			out = append(out, i)
+		}
+	}
+	return out
+}
+
+// minorMisfitRow gathers the notes minor (minorMisfits, two or more) into
+// one row of the findings table, the last: their numbers (those the plan
+// view marks), the groups and chainages, one sentence on what they share,
+// with the largest share of the signal any of them misses by, and each
+// note's own words below it.
+func minorMisfitRow(d *Document, minor []int) findingRow {
+	var keys, items []string
+	worst := 0.0
+	lo, hi := math.Inf(1), math.Inf(-1)
+	for _, i := range minor {
+		f := &d.Findings[i]
+		keys = append(keys, f.Groups...)
+		items = append(items, fmt.Sprintf("%d: %s", i+1, f.Message))
+		lo, hi = math.Min(lo, f.ChainageFrom), math.Max(hi, f.ChainageTo)
+		var res, sig float64
+		for _, x := range f.Values {
+			switch x.Name {
+			case "rms residual":
+				res = x.Value
+			case "rms signal":
+				sig = x.Value
+			}
+		}
+		if sig > 0 {
+			worst = math.Max(worst, res/sig)
+		}
+	}
+	var where []string
+	if d.Route != nil {
+		where = append(where, fmt.Sprintf("chainage %.0f–%.0f m", lo, hi))
+	}
+	where = append(where, "groups "+strings.Join(keys, ", "))
+	msg := fmt.Sprintf("%d fits miss their readings by more than the noise allows, but by little", len(minor))
+	if worst > 0 {
+		msg += fmt.Sprintf(" (at most %s%% of the signal)", sigText(100*worst))
+	}
+	msg += ": the straight-line model is only approximate there (a bend, a change of depth, a change of current or a nearby object, as each note says). Their estimates are used and hold to about the share they miss by, but their ± figures may be too small. A fit that misses by more is a caution."
+	return findingRow{
+		N: numberRuns(minor), Severity: SeverityInfo, Kind: "slight misfits",
+		Where: strings.Join(where, " · "), Message: msg, Items: items,
+	}
+}
+
+// numberRuns writes the findings' numbers of the indices idx (ascending),
+// runs of three or more joined by a dash: "6, 8–18".
+func numberRuns(idx []int) string {
+	var parts []string
+	for k := 0; k < len(idx); {
+		j := k
+		for j+1 < len(idx) && idx[j+1] == idx[j]+1 {
+			j++
+		}
+		switch {
+		case j-k >= 2:
+			parts = append(parts, fmt.Sprintf("%d–%d", idx[k]+1, idx[j]+1))
+		default:
+			for m := k; m <= j; m++ {
+				parts = append(parts, strconv.Itoa(idx[m]+1))
+			}
+		}
+		k = j + 1
+	}
+	return strings.Join(parts, ", ")
+}
+
 // fitNotes gathers the fits' notes, each text once with the groups it
 // applies to, in order of first appearance.
 func fitNotes(d *Document) []string {
@@ -707,6 +856,10 @@ func (v *view) summarise() {
 	default:
 		v.Counts = fmt.Sprintf("%s, %s and %s (listed below, most pressing first).",
 			plural(warn, "warning"), plural(caut, "caution"), plural(info, "note"))
+		if m := len(minorMisfits(d)); m > 1 {
+			v.Counts = fmt.Sprintf("%s, %s and %s (listed below, most pressing first; %d of the notes, on fits that miss their readings slightly, in one row at the end).",
+				plural(warn, "warning"), plural(caut, "caution"), plural(info, "note"), m)
+		}
 	}
 	if n := len(d.Warnings); n > 0 {
 		v.Counts += fmt.Sprintf(" See also %s about the run at the end of the report.", plural(n, "warning"))
@@ -754,8 +907,8 @@ func (v *view) summarise() {
 			// start from one walk and the end from another (a 0.435 A
 			// fall along the route read as 0.299 A; found in review).
 			// On an AC route each end with its phase (endCurrent).
-			v.Headline = append(v.Headline, fmt.Sprintf("%s is %s at chainage %.0f m and %s at %.0f m%s.",
-				what, endCurrent(d, r, &a), a.Chainage, endCurrent(d, r, &b), b.Chainage, firstWalkClause(r)))
+			v.Headline = append(v.Headline, fmt.Sprintf("%s is %s and %s%s.",
+				what, endClause(d, r, &a, "chainage "), endClause(d, r, &b, ""), firstWalkClause(r)))
 			// The shallowest station is taken from every used one (cover is
 			// a safety matter); the deepest from those whose fit is sound,
 			// when there are any: a bend's poor fit read 1.34 m where the
@@ -800,35 +953,57 @@ func (v *view) summarise() {
 				}
 			}
 			// With further conductors this line is conductor 1's alone, and
-			// the next one gives the least cover over all of them.
-			subj := "Depth " + shortRef(d) + " is"
+			// the least-cover sentence gives the least cover over all of
+			// them. When the ground is known the line gives the cover
+			// first, the depth below the sensors after it and named so:
+			// "depth below the sensors is 0.70 to 1.29 m" led the demo's
+			// summary where the cover is 0.40 to 0.99 m (found in review).
+			who := ""
 			sidePairs := len(d.sidePairs()) > 0
 			if len(d.Conductors) > 0 || sidePairs {
-				subj = "Conductor 1: depth " + shortRef(d) + " is"
+				who = "Conductor 1: "
+			}
+			clo, coverKnown := d.cover(lo.Depth)
+			chi, _ := d.cover(hi.Depth)
+			subj, what := "Depth below the sensors", "depth below the sensors"
+			from, to := lo.Depth, hi.Depth
+			if coverKnown {
+				subj, what = "Cover (depth below ground)", "cover (depth below ground)"
+				from, to = clo, chi
+			}
+			if who != "" {
+				subj = who + what
 			}
 			var line string
-			switch rng, one := span(lo.Depth, hi.Depth); {
+			switch rng, one := span(from, to); {
 			case one && !deepPoor:
-				line = fmt.Sprintf("%s %s m at every station", subj, rng)
+				line = fmt.Sprintf("%s is %s m at every station", subj, rng)
 			case one:
-				line = fmt.Sprintf("%s %s m at every station that fits soundly (deeper only where the fit is poor)", subj, rng)
+				line = fmt.Sprintf("%s is %s m at every station that fits soundly (deeper only where the fit is poor)", subj, rng)
 			case !deepPoor:
-				line = fmt.Sprintf("%s %s m (shallowest at chainage %.0f m)", subj, rng, lo.Chainage)
+				line = fmt.Sprintf("%s is %s m (shallowest at chainage %.0f m)", subj, rng, lo.Chainage)
 			default:
-				line = fmt.Sprintf("%s %s m (shallowest at chainage %.0f m; deeper only where the fit is poor)", subj, rng, lo.Chainage)
+				line = fmt.Sprintf("%s is %s m (shallowest at chainage %.0f m; deeper only where the fit is poor)", subj, rng, lo.Chainage)
 			}
-			if c, ok := d.cover(lo.Depth); ok {
+			if coverKnown && d.DepthReference.Kind != DepthBelowGround {
+				rng, _ := span(lo.Depth, hi.Depth)
+				line += fmt.Sprintf("; that is %s m below the sensors", rng)
+			}
+			// The least cover with its doubts, always: a single
+			// conductor's summary gave a bare "least cover 0.846 ± 0.013
+			// m" from a poor fit by a conductor's end, 11.8 sigma shallow,
+			// where the terminal gave LeastCover's caveat and the cover
+			// at the sound stations (found in review).
+			lc := LeastCover(d)
+			if c, ok := d.cover(lo.Depth); ok && lc == "" {
 				line += fmt.Sprintf("; least cover %s m", pm(c, d.coverSigma(lo.DepthSigma)))
 			}
 			v.Headline = append(v.Headline, line+".")
-			lone, shallowLone := d.shallowLoneLine()
-			if c, ok := d.cover(lo.Depth); ok && shallowLone {
-				shallowLone = lone.cover < c
+			if lc != "" {
+				v.Headline = append(v.Headline, lc)
 			}
-			if len(d.Conductors) > 0 || sidePairs || shallowLone {
-				if lc := LeastCover(d); lc != "" {
-					v.Headline = append(v.Headline, lc)
-				}
+			if !coverKnown {
+				v.Headline = append(v.Headline, NoCoverSentence)
 			}
 		}
 		if r.StationScatterCurrent != nil && r.StationScatterDepth != nil {
@@ -843,15 +1018,15 @@ func (v *view) summarise() {
 		for _, g := range d.Groups {
 			for i, s := range g.Sources {
 				if s.Kind == KindDipole {
-					v.Headline = append(v.Headline, fmt.Sprintf("Source %d is a magnetised object, not a current, at %s, %s m %s.",
-						i+1, en(s.Point), num(s.Depth), shortRef(d)))
+					v.Headline = append(v.Headline, fmt.Sprintf("Source %d is a magnetised object, not a current, at %s, %s.",
+						i+1, en(s.Point), depthWords(d, s.Depth, 0, 0, func(v, _ float64) string { return num(v) })))
 					continue
 				}
 				line := fmt.Sprintf("Conductor %d: %s A", i+1, pm(s.Current, s.CurrentSigma))
 				if s.Phase != nil {
 					line += fmt.Sprintf(" RMS at %.0f°", *s.Phase)
 				}
-				line += fmt.Sprintf(", depth %s m %s, ", pm(s.Depth, s.DepthSigma), shortRef(d))
+				line += ", " + depthWords(d, s.Depth, s.DepthSigma, d.sourceCoverSigma(s.DepthSigma), pm) + ", "
 				if unresolved(&s, "azimuth") {
 					line += fmt.Sprintf("crossing the traverse at %s (its direction is assumed, not measured: one traverse cannot tell).", en(s.Point))
 				} else {
@@ -867,6 +1042,8 @@ func (v *view) summarise() {
 		}
 		if len(v.Headline) == 0 {
 			v.Headline = append(v.Headline, "No conductor was found in these readings.")
+		} else if _, known := d.cover(0); !known {
+			v.Headline = append(v.Headline, NoCoverSentence)
 		}
 	}
 	if len(curSig) > 0 {
@@ -967,6 +1144,12 @@ func compassPoint(bearing float64) string {
 	k := int(math.Floor(math.Mod(bearing+22.5+360, 360)/45)) % 8
 	return "about " + names[k]
 }
+
+// NoCoverSentence says, where the ground is not known, that the depths
+// given are below the sensors and the cover shallower than them: without
+// it a crew read "depth 1.75 m" as the cover over a cable 1.50 m down
+// (Kestrel Moor without --sensor-height; found in review).
+const NoCoverSentence = "Cover not computed: the sensors' height above the ground was not given, so every depth here is below the sensors, and the cover (the depth below the ground) is less than it by that height; give it with --sensor-height, or the ground level with --reference-z."
 
 // PairNetSentence says what the route's current is when conductor 1 is a
 // go-and-return pair (Route.PairNet).
@@ -1252,9 +1435,9 @@ func trackHeadline(d *Document, t *Track) string {
 	if t.Offset < 0 {
 		side = "left"
 	}
-	what, current, depth := "", "current", "depth"
+	what, current, depth, cover := "", "current", "depth", "cover"
 	if t.Route.PairNet {
-		what, current, depth = ", a go-and-return pair,", "net current (the sum of its cores' currents)", "centre depth"
+		what, current, depth, cover = ", a go-and-return pair,", "net current (the sum of its cores' currents)", "centre depth", "centre cover"
 	}
 	line := fmt.Sprintf("Conductor %d%s was followed for %.0f m in %d groups, %s m to the %s of conductor 1 (looking along the route)",
 		t.Number, what, t.Route.Length, len(t.Route.Stations), num(math.Abs(t.Offset)), side)
@@ -1282,8 +1465,8 @@ func trackHeadline(d *Document, t *Track) string {
 		for _, s := range used {
 			lo, hi = math.Min(lo, s.Depth), math.Max(hi, s.Depth)
 		}
-		rng, one := span(lo, hi)
-		line += fmt.Sprintf("; %s %s %s m", depth, shortRef(d), rng)
+		_, one := span(lo, hi)
+		line += "; " + depthRangeWords(d, lo, hi, depth, cover)
 		if s, c, sg, ok := leastCoverOf(d, &t.Route); ok {
 			line += fmt.Sprintf("; least cover %s m", pm(c, sg))
 			if !one {
@@ -1398,6 +1581,42 @@ func medianAbsCurrent(r *Route) float64 {
 		}
 	}
 	return median(a)
+}
+
+// depthRangeWords words the depths lo to hi below the depth reference of
+// a further conductor's stations for its summary sentence, the cover
+// first where the ground is known and the depth below the sensors named
+// so beside it, as conductor 1's line: "cover 0.70 to 0.73 m (depth
+// below the sensors 1.00 to 1.03 m)", "depth below the sensors 1.00 to
+// 1.03 m"; depth and cover name the quantities ("centre depth" for a
+// pair).
+func depthRangeWords(d *Document, lo, hi float64, depth, cover string) string {
+	rng, _ := span(lo, hi)
+	clo, ok := d.cover(lo)
+	switch {
+	case !ok:
+		return fmt.Sprintf("%s %s %s m", depth, shortRef(d), rng)
+	case d.DepthReference.Kind == DepthBelowGround:
+		return fmt.Sprintf("%s (%s below ground) %s m", cover, depth, rng)
+	}
+	chi, _ := d.cover(hi)
+	crng, _ := span(clo, chi)
+	return fmt.Sprintf("%s %s m (%s below the sensors %s m)", cover, crng, depth, rng)
+}
+
+// depthWords words a depth for a summary sentence, the cover first when
+// the ground is known: "cover 0.90 ± 0.02 m (depth below the sensors 1.20
+// ± 0.01 m)", "cover 0.90 m (depth below the ground)", or "depth 1.20 m
+// below the sensors"; f writes a value and its sigma.
+func depthWords(d *Document, depth, depthSigma, coverSigma float64, f func(v, sigma float64) string) string {
+	c, ok := d.cover(depth)
+	switch {
+	case !ok:
+		return "depth " + f(depth, depthSigma) + " m below the sensors"
+	case d.DepthReference.Kind == DepthBelowGround:
+		return "cover " + f(c, coverSigma) + " m (depth below the ground)"
+	}
+	return "cover " + f(c, coverSigma) + " m (depth below the sensors " + f(depth, depthSigma) + " m)"
 }
 
 func shortRef(d *Document) string {
@@ -1637,3 +1856,13 @@ func groupHeights(d *Document) (lo, hi float64, ok bool) {
 	}
 	return lo, hi, ok
 }
+
+// CoverColumn returns the cover of each of group g's sources as the crew
+// report's table of every group gives it ("n/a" where the ground is not
+// known, "–" where a source has none of its own), for the terminal's
+// table; one entry, "–", for a failed fit.
+func (d *Document) CoverColumn(g *Group) []string { return (&view{D: d}).groupRow(g).Cover }
+
+// Cover returns the cover (depth below the ground) of a depth below the
+// depth reference; ok is false when the ground is not known.
+func (d *Document) Cover(depth float64) (cover float64, ok bool) { return d.cover(depth) }

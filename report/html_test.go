@@ -163,16 +163,17 @@ func TestWriteFilesNotADirectory(t *testing.T) {
 }
 
 // TestHTMLGroundSigma: the crew report's summary gives the least cover with the ground
-// level's uncertainty in quadrature, and says what the cover sigmas include.
+// level's uncertainty in quadrature (in LeastCover's sentence), and says what the
+// cover sigmas include.
 func TestHTMLGroundSigma(t *testing.T) {
 	for _, tc := range []struct {
 		ground      float64
 		cover, says string
 	}{
-		{0, "least cover 0.545 ± 0.012 m", "the fitted depth sigmas only, which cover the reading noise"},
+		{0, ": 0.545 ± 0.012 m, conductor 1 at", "the fitted depth sigmas only, which cover the reading noise"},
 		// The fixture's shallowest station has a depth sigma of 0.012 m:
 		// hypot(0.012, 0.05) = 0.0514, printed to two significant digits.
-		{0.05, "least cover 0.545 ± 0.051 m", "and 0.050 m (one sigma) for the ground level"},
+		{0.05, ": 0.545 ± 0.051 m, conductor 1 at", "and 0.050 m (one sigma) for the ground level"},
 	} {
 		d := fenwickLane(false)
 		d.DepthReference.GroundSigma = tc.ground

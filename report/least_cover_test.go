@@ -106,8 +106,9 @@ func TestLeastCoverOverEveryConductor(t *testing.T) {
 	if !strings.Contains(sum, cs) {
 		t.Errorf("summary lacks conductor 2's sentence %q:\n%s", cs, sum)
 	}
-	// Conductor 1's own line says whose cover it is.
-	if c := coverIn(t, sum, "Conductor 1: depth below the sensors is 1.30 m at every station; least cover "); math.Abs(c-feederCover) > 0.003 {
+	// Conductor 1's own line says whose cover it is, and gives the cover
+	// first.
+	if c := coverIn(t, sum, "Conductor 1: cover (depth below ground) is "); math.Abs(c-feederCover) > 0.003 {
 		t.Errorf("conductor 1's least cover %.4f m, want %.2f m", c, feederCover)
 	}
 	// No minimum cover was given: "no findings" says nothing was checked.

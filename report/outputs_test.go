@@ -484,7 +484,7 @@ func TestHTMLPolish(t *testing.T) {
 		`<td class="num">n/a</td>`,
 		"*Cover n/a: the sensors' height above the ground was not given",
 		"Readings n/a: the file holds no readings",
-		"Fitted depth per group with ± two standard deviations. Depth is below the sensors",
+		"Fitted depth below the sensors per group with ± two standard deviations: not the cover",
 		"lat 52.47", "° N, lon 0.16", "° E",
 	} {
 		if !strings.Contains(page, want) {

@@ -1214,12 +1214,31 @@ func alongPlot(d *Document, r *Route, conductor int, which string, narrow bool) 
 	// The phase plot (AC) draws each station's phase unwrapped along
 	// the route from the one before it.
 	prevPhase, havePhase := 0.0, false
+	// The depth plot draws the cover, the ground at 0, where the ground
+	// is known: drawn below the sensors, the ground at 0.3 m unlabelled
+	// on the axis, the depth a crew reads off it was 0.30 m deeper than
+	// the cover (found in review).
+	shift := 0.0
+	if g, ok := groundDepth(d); ok && which == "depth" {
+		shift = g
+	}
+	// A used station whose fit is poor or ambiguous (used with care, as
+	// its finding says) is drawn apart from the sound ones: the demo's
+	// poor fit at a bend, 1.7 A over its neighbours, read as a rise in
+	// current drawn as they are (found in review).
+	doubted := map[string]bool{}
+	for i := range d.Groups {
+		if g := &d.Groups[i]; d.fitDoubted(g) {
+			doubted[g.Key] = true
+		}
+	}
+	var care []bool
 	for i := range r.Stations {
 		st := &r.Stations[i]
 		v, s := st.Current, st.CurrentSigma
 		switch which {
 		case "depth":
-			v, s = st.Depth, st.DepthSigma
+			v, s = st.Depth-shift, st.DepthSigma
 		case "phase":
 			if st.Phase == nil || st.PhaseSigma == nil {
 				continue
@@ -1245,6 +1264,7 @@ func alongPlot(d *Document, r *Route, conductor int, which string, narrow bool) 
 				v, s = st.levelCurrent()
 			}
 			x, y, e = append(x, st.Chainage), append(y, v), append(e, 2*s)
+			care = append(care, doubted[st.Key])
 			across = append(across, skipped && len(x) > 1)
 			used = append(used, st)
 			skipped = false
@@ -1267,6 +1287,7 @@ func alongPlot(d *Document, r *Route, conductor int, which string, narrow bool) 
 	keep := usedRange(x, y, e)
 	if which == "depth" {
 		if g, ok := groundDepth(d); ok && keep.ok {
+			g -= shift
 			keep.lo, keep.hi = math.Min(keep.lo, g), math.Max(keep.hi, g)
 			if mc := d.MinCover; mc != nil && mc.Depth > 0 {
 				keep.hi = math.Max(keep.hi, g+mc.Depth)
@@ -1299,7 +1320,10 @@ func alongPlot(d *Document, r *Route, conductor int, which string, narrow bool) 
 	switch which {
 	case "depth":
 		title = "Depth along the route"
-		ylabel = "depth below " + depthRefShort(d) + " (m)"
+		ylabel = "depth below the sensors (m)"
+		if _, ok := groundDepth(d); ok {
+			title, ylabel = "Cover along the route", "cover: depth below ground (m)"
+		}
 	case "phase":
 		title, ylabel = "Phase along the route", "phase of the current (°)"
 	}
@@ -1313,13 +1337,29 @@ func alongPlot(d *Document, r *Route, conductor int, which string, narrow bool) 
 		p.Y.Scale = plot.InvertedScale{Normalizer: plot.LinearScale{}}
 	}
 	if len(x) > 0 {
-		eb, err := plotter.NewYErrorBars(xyErr{xy{x, y}, e})
-		if err != nil {
-			return nil, err
+		var sound, doubt xyErr
+		for k := range x {
+			set := &sound
+			if care[k] {
+				set = &doubt
+			}
+			set.x, set.y, set.e = append(set.x, x[k]), append(set.y, y[k]), append(set.e, e[k])
 		}
-		eb.LineStyle.Color = colFit
-		eb.LineStyle.Width = 1
-		p.Add(eb)
+		for _, set := range []struct {
+			at xyErr
+			c  color.Color
+		}{{sound, colFit}, {doubt, colCaution}} {
+			if len(set.at.x) == 0 {
+				continue
+			}
+			eb, err := plotter.NewYErrorBars(set.at)
+			if err != nil {
+				return nil, err
+			}
+			eb.LineStyle.Color = set.c
+			eb.LineStyle.Width = 1
+			p.Add(eb)
+		}
 		// The used stations joined solidly where they are neighbours,
 		// and by a dotted line across stations not used: drawn solid
 		// across three failed fits it read as a steady current measured
@@ -1371,7 +1411,7 @@ func alongPlot(d *Document, r *Route, conductor int, which string, narrow bool) 
 			}
 			k0 = k1
 		}
-		s, err := scatter(p, xy{x, y}, draw.CircleGlyph{}, colFit, 2.5)
+		s, err := scatter(p, sound.xy, draw.CircleGlyph{}, colFit, 2.5)
 		if err != nil {
 			return nil, err
 		}
@@ -1382,7 +1422,15 @@ func alongPlot(d *Document, r *Route, conductor int, which string, narrow bool) 
 				name = "at the first walk's level, ±2σ"
 			}
 		}
-		p.Legend.Add(name, s)
+		if s != nil {
+			p.Legend.Add(name, s)
+		}
+		if s, err = scatter(p, doubt.xy, draw.BoxGlyph{}, colCaution, 2.5); err != nil {
+			return nil, err
+		}
+		if s != nil {
+			p.Legend.Add("poor fit, used with care, ±2σ", s)
+		}
 		if levelled && later.Len() > 0 {
 			// The later walks as they read, unjoined: their own
 			// currents, which hold for their own time only.
@@ -1420,6 +1468,7 @@ func alongPlot(d *Document, r *Route, conductor int, which string, narrow bool) 
 	x0, x1 := 0.0, r.Length
 	if which == "depth" {
 		if g, ok := groundDepth(d); ok {
+			g -= shift
 			l, err := polyline(p, xy{[]float64{x0, x1}, []float64{g, g}}, colGround, 1)
 			if err != nil {
 				return nil, err
@@ -1446,6 +1495,7 @@ func alongPlot(d *Document, r *Route, conductor int, which string, narrow bool) 
 	if which != "depth" {
 		padY(p, 0.05, 0.1)
 		lo, hi := p.Y.Min, p.Y.Max
+		stepNamed := false
 		for _, f := range d.Findings {
 			if f.Kind != "current-step" || f.Conductor != conductor {
 				continue
@@ -1464,8 +1514,19 @@ func alongPlot(d *Document, r *Route, conductor int, which string, narrow bool) 
 					p.Add(band)
 				}
 			}
-			if _, err := polyline(p, xy{[]float64{at, at}, []float64{lo, hi}}, colWarning, 1, 4, 3); err != nil {
+			l, err := polyline(p, xy{[]float64{at, at}, []float64{lo, hi}}, colWarning, 1, 4, 3)
+			if err != nil {
 				return nil, err
+			}
+			if l != nil && !stepNamed {
+				// Named in the legend, not in the caption alone (found
+				// in review).
+				name := "step in current (a finding): likely chainage, ±1σ shaded"
+				if narrow {
+					name = "step in current, ±1σ shaded"
+				}
+				p.Legend.Add(name, l)
+				stepNamed = true
 			}
 		}
 	}
@@ -1613,13 +1674,6 @@ func groundDepth(d *Document) (float64, bool) {
 		return d.DepthReference.SensorHeight, true
 	}
 	return 0, false
-}
-
-func depthRefShort(d *Document) string {
-	if d.DepthReference.Kind == DepthBelowGround {
-		return "ground"
-	}
-	return "sensors"
 }
 
 // profilePlot plots a group's measured field against the fit across the

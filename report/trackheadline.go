@@ -328,8 +328,12 @@ func trackSummary(d *Document, t *Track) string {
 		for _, s := range used {
 			lo, hi = math.Min(lo, s.Depth), math.Max(hi, s.Depth)
 		}
-		rng, one := span(lo, hi)
-		line += fmt.Sprintf("; depth %s %s m", shortRef(d), rng)
+		_, one := span(lo, hi)
+		depth, cover := "depth", "cover"
+		if t.Route.PairNet {
+			depth, cover = "centre depth", "centre cover"
+		}
+		line += "; " + depthRangeWords(d, lo, hi, depth, cover)
 		if s, cv, sg, ok := leastCoverOf(d, &t.Route); ok {
 			line += fmt.Sprintf("; least cover %s m", pm(cv, sg))
 			if !one {

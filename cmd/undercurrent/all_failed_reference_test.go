@@ -35,7 +35,7 @@ func TestLocateAllFailedKeepsReference(t *testing.T) {
 	if code != 0 {
 		t.Fatalf("locate: exit %d\n%s%s", code, stdout, stderr)
 	}
-	if !strings.Contains(stdout, "depths are below the ground at up = 0 m") {
+	if !strings.Contains(stdout, "cover is the depth below the ground at up = 0 m") {
 		t.Errorf("the summary does not give the depth reference asked for:\n%s", stdout)
 	}
 	raw, err := os.ReadFile(filepath.Join(out, "results.json"))

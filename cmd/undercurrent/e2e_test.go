@@ -536,11 +536,12 @@ func TestDemo(t *testing.T) {
 		}
 	}
 	html, _ := os.ReadFile(filepath.Join(dir, "report.html"))
-	// The summary's depth range: the shallowest from every station (the
-	// shallow stretch, 0.70 m below the sensors at T13), the deepest from
-	// those that fit soundly (1.29 m; the poor fit at the bend, T19, read
-	// 1.34 m), saying so.
-	for _, want := range []string{"<svg", "live", "Fenwick Lane", "Conductor 1: depth below the sensors is 0.70 to 1.29 m (shallowest at chainage 60 m; deeper only where the fit is poor)"} {
+	// The summary's depth range, the cover first: the shallowest from
+	// every station (the shallow stretch, 0.40 m of cover, 0.70 m below
+	// the sensors at T13), the deepest from those that fit soundly (1.29
+	// m below the sensors; the poor fit at the bend, T19, read 1.34 m),
+	// saying so.
+	for _, want := range []string{"<svg", "live", "Fenwick Lane", "Conductor 1: cover (depth below ground) is 0.400 to 0.991 m (shallowest at chainage 60 m; deeper only where the fit is poor); that is 0.70 to 1.29 m below the sensors"} {
 		if !bytes.Contains(html, []byte(want)) {
 			t.Errorf("report.html does not contain %q", want)
 		}

@@ -2434,6 +2434,10 @@ func sourceColumns(doc *report.Document, g *report.Group, i int) (cur, dep strin
 	return sourceCurrent(g.Sources[i]), report.PlusMinus(depth, sigma)
 }
 
+// failedFit fills the current column of a failed fit in the terminal's
+// table, whose depth and cover read "-".
+const failedFit = "fit failed, no value"
+
 // robustGroups returns the number of groups fitted with Huber weights
 // (inverse.RobustNote among their notes).
 func robustGroups(doc *report.Document) int {
@@ -2476,7 +2480,21 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 	if doc.DepthReference.Kind == report.DepthBelowGround {
 		ref = fmt.Sprintf("below the ground at up = %g m", doc.DepthReference.Z)
 	}
-	fmt.Fprintf(w, "depths are %s; currents %s, one-sigma uncertainties\n", ref, map[bool]string{true: "RMS with phase", false: "DC"}[doc.Signal.Mode == report.SignalAC])
+	// The cover first where the ground is known, and the depth below the
+	// sensors named so: headed "depth (m)", it read 0.30 m deeper than
+	// the cover (found in review).
+	_, coverKnown := doc.Cover(0)
+	depthCol := doc.DepthReference.Kind != report.DepthBelowGround
+	switch {
+	case !coverKnown:
+		fmt.Fprintf(w, "depths are %s; currents %s, one-sigma uncertainties\n", ref, map[bool]string{true: "RMS with phase", false: "DC"}[doc.Signal.Mode == report.SignalAC])
+		fmt.Fprintln(w, report.NoCoverSentence)
+	case depthCol:
+		fmt.Fprintf(w, "cover is the depth below the ground: the depth %s less the sensors' %.2f m height above the ground; currents %s, one-sigma uncertainties\n",
+			ref, doc.DepthReference.SensorHeight, map[bool]string{true: "RMS with phase", false: "DC"}[doc.Signal.Mode == report.SignalAC])
+	default:
+		fmt.Fprintf(w, "cover is the depth %s; currents %s, one-sigma uncertainties\n", ref, map[bool]string{true: "RMS with phase", false: "DC"}[doc.Signal.Mode == report.SignalAC])
+	}
 	if robustGroups(doc) > 0 {
 		// The sigmas of Huber-weighted fits are large-sample ones (the
 		// uncertainty_note of results.csv and each group's notes say so too).
@@ -2489,13 +2507,33 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 	}
 	// Values keep every digit their sigmas call for (a milliampere current
 	// to a microampere sigma), so the columns widen to the widest.
-	dw := 16 // depth column
+	depthHead, coverHead := "depth below sensors (m)", "cover (m)"
+	dw := 1 + utf8.RuneCountInString(depthHead) // depth column
+	vw := 16                                    // cover column
 	for _, g := range doc.Groups {
+		if !g.OK {
+			// Printed as a failed fit, without its numbers (below).
+			cw = max(cw, 1+utf8.RuneCountInString(failedFit))
+			continue
+		}
 		for i := range g.Sources {
 			cur, dep := sourceColumns(doc, &g, i)
 			cw = max(cw, 1+utf8.RuneCountInString(cur))
 			dw = max(dw, 1+utf8.RuneCountInString(dep))
 		}
+		for _, c := range doc.CoverColumn(&g) {
+			vw = max(vw, 1+utf8.RuneCountInString(c))
+		}
+	}
+	// cols writes the cover and depth columns, as far as they are shown.
+	cols := func(cov, dep string) string {
+		switch {
+		case !coverKnown:
+			return fmt.Sprintf(" %*s", dw, dep)
+		case depthCol:
+			return fmt.Sprintf(" %*s %*s", vw, cov, dw, dep)
+		}
+		return fmt.Sprintf(" %*s", vw, cov)
 	}
 	// The group column widens to the widest name (a group named after
 	// its log, "pb.csv:T01", loggroups.go).
@@ -2503,7 +2541,7 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 	for _, g := range doc.Groups {
 		kw = max(kw, utf8.RuneCountInString(g.Key))
 	}
-	fmt.Fprintf(w, "%-*s %10s %*s %*s %9s", kw, "group", "chainage", cw, "current (A)", dw, "depth (m)", "rms (nT)")
+	fmt.Fprintf(w, "%-*s %10s %*s%s %9s", kw, "group", "chainage", cw, "current (A)", cols(coverHead, depthHead), "rms (nT)")
 	if tracks {
 		// Which conductor along the route each source belongs to: 1 is the
 		// route's own, 2, 3, ... the further ones followed (doc.Conductors).
@@ -2525,10 +2563,21 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 		if !has {
 			rms = "-"
 		}
-		if len(g.Sources) == 0 {
-			fmt.Fprintf(w, "%-*s %10s %*s %*s %9s  %s\n", kw, key, ch, cw, "-", dw, "-", rms, g.Problem)
+		if len(g.Sources) == 0 || !g.OK {
+			// A failed fit's numbers mean nothing (its problem says so):
+			// printed, T12's 0.636 m read as a cable's cover 14 m past
+			// its end (found in review).
+			cur, note := "-", "  "+g.Problem
+			if !g.OK {
+				cur, note = failedFit, "  fit failed: "+g.Problem
+			}
+			if tracks {
+				note = fmt.Sprintf(" %9s", "-") + note
+			}
+			fmt.Fprintf(w, "%-*s %10s %*s%s %9s%s\n", kw, key, ch, cw, cur, cols("-", "-"), rms, note)
 			continue
 		}
+		covers := doc.CoverColumn(&g)
 		for i, s := range g.Sources {
 			k := key
 			if i > 0 {
@@ -2556,7 +2605,11 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 				}
 				note = fmt.Sprintf(" %9s", c) + note
 			}
-			fmt.Fprintf(w, "%-*s %10s %*s %*s %9s%s\n", kw, k, ch, cw, cur, dw, dep, rms, note)
+			cov := "-"
+			if i < len(covers) {
+				cov = covers[i]
+			}
+			fmt.Fprintf(w, "%-*s %10s %*s%s %9s%s\n", kw, k, ch, cw, cur, cols(cov, dep), rms, note)
 		}
 	}
 	if doc.Route != nil && doc.Route.PairNet {

@@ -36,7 +36,7 @@ func TestLocateSummarySmallSigmas(t *testing.T) {
 		t.Fatalf("no table:\n%s", out)
 	}
 	// The depth column ends where its heading does, on every row.
-	end := utf8.RuneCountInString(lines[header][:strings.Index(lines[header], "depth (m)")+len("depth (m)")])
+	end := utf8.RuneCountInString(lines[header][:strings.Index(lines[header], "depth below sensors (m)")+len("depth below sensors (m)")])
 	rows := 0
 	for _, l := range lines[header+1:] {
 		if strings.HasPrefix(l, "findings") || strings.HasPrefix(l, "Conductor ") {
