@@ -19,6 +19,11 @@ import (
 // at 1.2 and 1.5 with 1.5).
 const paceLive = 1.1
 
+// paceCatch is the fastest pace a replay is taken to catch up to its
+// schedule at (see clockAhead): a replay at up to this speed that
+// stalled is not live by its lead over the clock.
+const paceCatch = 1.5
+
 // maxAheadHeld bounds a run of batches held as ahead of the broker's
 // clock; a run that long is taken as confirmed (see clockAhead).
 const maxAheadHeld = 4096
@@ -169,6 +174,13 @@ func (a *assembler) clockAhead(s int, seq uint64, b *broker.Batch, now time.Time
 	}
 	clock := unixSeconds(a.clock)
 	if b.Time[0]-a.water[s] <= a.aheadMargin()+paceLive*math.Max(0, clock-p.w) || b.Time[0] <= clock+a.aheadMargin() {
+		return b, added, false
+	}
+	if b.Time[0]-clock <= p.d0-p.w0+(paceCatch-1)*(clock-p.w0)+a.aheadMargin() {
+		// Its lead over the clock grew no more since the pace's older
+		// anchor than a replay at up to paceCatch would gain: a replay
+		// that fell behind its schedule (a stall, a slow broker) and
+		// caught up across a gap, as its measured pace then is below it.
 		return b, added, false
 	}
 	if q, k := a.others(now, s); k >= 1 && b.Time[0] <= q+a.aheadMargin() {
