@@ -12,9 +12,17 @@ import (
 // broker's clock, at which a sensor counts as live. A source running
 // faster (a log replayed at --speed 2 or more, or as fast as the broker
 // takes it) is ahead of the clock by its own doing, and a gap in it is
-// not a clock jump. 1.5 leaves room for a gateway sending its batches in
-// bursts.
-const paceLive = 1.5
+// not a clock jump. A live sensor's pace is 1 within its clock's drift;
+// 1.1 leaves room for a gateway sending its batches in bursts (the pace
+// is measured over paceSpan), and keeps a replay at --speed 1.2 or more
+// that stalled before a gap from counting as live (rg17a: false alarms
+// at 1.2 and 1.5 with 1.5).
+const paceLive = 1.1
+
+// paceCatch is the fastest pace a replay is taken to catch up to its
+// schedule at (see clockAhead): a replay at up to this speed that
+// stalled is not live by its lead over the clock.
+const paceCatch = 1.5
 
 // maxAheadHeld bounds a run of batches held as ahead of the broker's
 // clock; a run that long is taken as confirmed (see clockAhead).
@@ -64,6 +72,7 @@ type clockJump struct {
 	given     bool // given up (else filed)
 	confirmed bool // filed as dated: the sensor kept to the jumped clock
 	along     int  // the sensor whose confirmed run carried this one, or -1
+	repeat    bool // given up within paceSpan of the sensor's last run given up: no new alarm
 	why       string
 }
 
@@ -108,7 +117,7 @@ func (a *assembler) paceSpan() float64 { return 10 * a.aheadMargin() }
 func (a *assembler) clockAhead(s int, seq uint64, b *broker.Batch, now time.Time, subj string, data []byte) (*broker.Batch, addResult, bool) {
 	if h := a.ahead[s]; len(h) > 0 {
 		if b.Time[0] < h[0].b.Time[0] {
-			a.giveUpAhead(s, fmt.Sprintf("the sensor's next batch, from %v (%s), goes back before them: its clock jumped forward and back", b.Time[0], unixString(b.Time[0])))
+			a.giveUpAhead(s, now, fmt.Sprintf("the sensor's next batch, from %v (%s), goes back before them: its clock jumped forward and back", b.Time[0], unixString(b.Time[0])))
 			return b, added, false
 		}
 		last := h[len(h)-1].b
@@ -130,12 +139,31 @@ func (a *assembler) clockAhead(s int, seq uint64, b *broker.Batch, now time.Time
 		switch {
 		case !a.clock.IsZero() && b.Time[0] <= stored+a.aheadMargin():
 			a.fileAhead(s, now, "the broker's clock reached the sensor's data")
-		case len(h) >= 2 && aheadSpan(h) >= a.aheadMargin():
-			a.confirmAhead(s, now, fmt.Sprintf("the sensor went on sending in line with them: %d batches covering %.3g s", len(h), aheadSpan(h)))
-		case len(h) >= maxAheadHeld:
-			a.confirmAhead(s, now, fmt.Sprintf("the sensor sent %d batches in line with them", len(h)))
+		case len(h) >= 2 && aheadSpan(h) >= a.aheadMargin() || len(h) >= maxAheadHeld:
+			if !a.othersMoved(s, now) {
+				// The other sensors go on at the broker's clock: the jump
+				// is this sensor's alone, and its data is left to the
+				// hold for a sensor far ahead of every other (addMsg).
+				a.held[s] = append(a.held[s], h...)
+				a.ahead[s] = nil
+				for i := range a.held[s] {
+					a.held[s][i].clock = false
+				}
+				if n := len(a.held[s]); n > maxHeld {
+					a.reject(s, n-maxHeld, fmt.Sprintf("more than %d batches of the sensor were held", maxHeld))
+				}
+				return b, heldBack, true
+			}
+			if len(h) >= maxAheadHeld {
+				a.confirmAhead(s, now, fmt.Sprintf("the sensor sent %d batches in line with them", len(h)))
+			} else {
+				a.confirmAhead(s, now, fmt.Sprintf("the sensor went on sending in line with them: %d batches covering %.3g s", len(h), aheadSpan(h)))
+			}
 		}
 		return b, heldAhead, true
+	}
+	if len(a.held[s]) > 0 {
+		return b, added, false // left to the hold for a sensor far ahead of the others
 	}
 	p := &a.pace[s]
 	if a.clock.IsZero() || math.IsInf(a.water[s], -1) || p.n == 0 {
@@ -148,12 +176,39 @@ func (a *assembler) clockAhead(s int, seq uint64, b *broker.Batch, now time.Time
 	if b.Time[0]-a.water[s] <= a.aheadMargin()+paceLive*math.Max(0, clock-p.w) || b.Time[0] <= clock+a.aheadMargin() {
 		return b, added, false
 	}
+	if b.Time[0]-clock <= p.d0-p.w0+(paceCatch-1)*(clock-p.w0)+a.aheadMargin() {
+		// Its lead over the clock grew no more since the pace's older
+		// anchor than a replay at up to paceCatch would gain: a replay
+		// that fell behind its schedule (a stall, a slow broker) and
+		// caught up across a gap, as its measured pace then is below it.
+		return b, added, false
+	}
 	if q, k := a.others(now, s); k >= 1 && b.Time[0] <= q+a.aheadMargin() {
 		return b, added, false // in line with another sensor of the asset
 	}
 	a.ahead[s] = []heldBatch{{seq: seq, b: b, at: now, subj: subj, data: data, clock: true, ahead: b.Time[0] - clock, stored: clock}}
 	a.seen[s] = now
 	return b, heldAhead, true
+}
+
+// othersMoved reports whether every other sensor of the asset heard from
+// lately moved with sensor s's held run: has a run held as ahead of the
+// clock too, or has data within aheadMargin of the run's start. A run
+// is confirmed only then (a gateway's clock moves all its sensors);
+// one sensor jumping alone while the others go on at the broker's clock
+// is far ahead of them, and filing its run would open windows far in
+// the future that the others never reach.
+func (a *assembler) othersMoved(s int, now time.Time) bool {
+	start := a.ahead[s][0].b.Time[0]
+	for o := range a.water {
+		if o == s || !a.heard(o, now) || len(a.ahead[o]) > 0 {
+			continue
+		}
+		if a.water[o] < start-a.aheadMargin() {
+			return false
+		}
+	}
+	return true
 }
 
 // aheadSpan is the sample time a held run covers, s.
@@ -185,15 +240,21 @@ func (a *assembler) releaseAhead(now time.Time) {
 	}
 }
 
-// giveUpAhead gives up sensor s's run held as ahead of the clock.
-func (a *assembler) giveUpAhead(s int, why string) {
+// giveUpAhead gives up sensor s's run held as ahead of the clock. A
+// run given up within paceSpan of the sensor's last one given up is a
+// repeat of the same episode (a clock flipping back and forth): its
+// clockJump says so, for the caller to log rather than alarm.
+func (a *assembler) giveUpAhead(s int, now time.Time, why string) {
 	h := a.ahead[s]
 	a.ahead[s] = nil
 	for i := range h {
 		h[i].why = why
 	}
 	a.rejected = append(a.rejected, h...)
-	a.jumps = append(a.jumps, a.jump(s, h, why))
+	j := a.jump(s, h, why)
+	j.repeat = !a.gaveUp[s].IsZero() && now.Sub(a.gaveUp[s]).Seconds() < a.paceSpan()
+	a.gaveUp[s] = now
+	a.jumps = append(a.jumps, j)
 }
 
 // fileAhead files sensor s's held run, in order, when the clock reached

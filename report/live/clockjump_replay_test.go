@@ -76,3 +76,45 @@ func TestClockJumpReplayGapNotHeld(t *testing.T) {
 		t.Errorf("%d samples filed, want %d", got, want)
 	}
 }
+
+// A log replayed with --now at 1.5 times real time that stalls 4 s just
+// before a gap of every sensor from 40 s to 80 s of data time, or at 1.2
+// times that stalls 14 s (regression review rg17a, R1, invented data):
+// the batches held up by the stall go out in a burst, late, and replay
+// waits the gap out only to its schedule, so the data moves 40 s while
+// the broker's clock moves about 23 s (24 s at 1.2). Nothing may be held
+// as ahead of the clock, and no jump reported. With the live pace bound
+// at 1.5 and no lead check, every sensor's data after the gap was held
+// and confirmed as a clock jump; the 1.2 replay's pace with the stall
+// (0.9) is under any live bound, and only its lead over the clock
+// (13 s, no more than 1.5 x real time since the pace's anchor gives)
+// keeps it from being held.
+func TestClockJumpStalledReplayGapNotHeld(t *testing.T) {
+	const t0 = 1796104800.0
+	for _, c := range []struct{ speed, stall, at float64 }{{1.5, 4, 39}, {1.2, 14, 34.8}} {
+		a := newAssembler(time.Second, 2*time.Second, 3) // margin 3 s
+		seq := uint64(0)
+		for step := 0; step < 1000; step++ {
+			d := 0.1 * float64(step)
+			if d >= 40 && d < 80 {
+				continue
+			}
+			stored := t0 + d/c.speed // --now: the log starts at the clock
+			if d >= c.at-1e-9 && d < 40 {
+				stored = t0 + c.at/c.speed + c.stall + 0.01*(d-c.at) // sent in a burst after the stall
+			}
+			for s := 0; s < 3; s++ {
+				seq++
+				// The first sensor back after the asset's gap is held as ahead
+				// of the others until they come (heldBack), as before.
+				if r := feedAt(a, s, seq, t0+d, stored); r != added && !(r == heldBack && s == 0 && d == 80) {
+					t.Fatalf("speed %v: sensor %d batch at %.1f s (%.1f s ahead of the clock): %v, want added", c.speed, s, d, t0+d-stored, r)
+				}
+			}
+			a.ready(time.Unix(0, int64(stored*1e9)), 0)
+		}
+		if j := a.takeJumps(); len(j) != 0 {
+			t.Errorf("speed %v: %d clock jumps reported, want none: %+v", c.speed, len(j), j)
+		}
+	}
+}

@@ -173,3 +173,96 @@ func TestClockJumpRefusedOrKept(t *testing.T) {
 		}
 	})
 }
+
+// One sensor whose clock steps 3000 s forward and stays there, while the
+// other sensors go on at the broker's clock (regression review rg17a,
+// R2, invented data): its run must not be confirmed from its own data
+// alone. fix-fx18a filed its first 3 s as dated, which opened windows
+// 3000 s ahead; idle later published them as failed, and the healthy
+// sensors, absent from them, were reported silent. The run is left to
+// the hold for a sensor far ahead of every other (as before fx18a): no
+// jump confirmed, no window beyond the live data, the live windows full.
+func TestClockJumpOneSensorStaysAheadNotKept(t *testing.T) {
+	const t0 = 1796104800.0
+	a := newAssembler(time.Second, 2*time.Second, 3)
+	var closed []*window
+	seq := uint64(0)
+	for step := 0; step < 80; step++ {
+		d := 0.1 * float64(step)
+		stored := t0 + d + 0.5
+		for s := 0; s < 3; s++ {
+			seq++
+			from := t0 + d
+			if s == 2 && step >= 20 {
+				from += 3000
+			}
+			r := feedAt(a, s, seq, from, stored)
+			if s < 2 && r != added || s == 2 && step >= 20 && r != heldAhead && r != heldBack {
+				t.Fatalf("sensor %d at %.1f s: %v", s, d, r)
+			}
+		}
+		closed = append(closed, a.ready(time.Unix(0, int64(stored*1e9)), 0)...)
+	}
+	// The data stops: idle closes what is open.
+	closed = append(closed, a.ready(time.Unix(int64(t0)+20, 0), time.Nanosecond)...)
+	for _, j := range a.takeJumps() {
+		if j.confirmed {
+			t.Errorf("jump %+v kept: one sensor alone moved", j)
+		}
+	}
+	if late, _ := a.takeFiled(); len(late) != 0 {
+		t.Errorf("%d held batches filed late, want 0", len(late))
+	}
+	if len(closed) != 8 {
+		t.Errorf("%d windows closed, want the 8 of the live data", len(closed))
+	}
+	for _, w := range closed {
+		if w.Start > t0+10 {
+			t.Errorf("window at %.0f s closed: the jumped sensor's data was filed as dated", w.Start-t0)
+			continue
+		}
+		for s := 0; s < 2; s++ {
+			if w.Sensors[s].len() != 100 {
+				t.Errorf("window at %.0f s: sensor %d has %d samples, want 100", w.Start-t0, s, w.Sensors[s].len())
+			}
+		}
+	}
+}
+
+// A sensor whose clock flips back and forth (regression review rg17a,
+// R3, invented data): each jumped batch followed by a true one is a run
+// given up, but only the first of an episode is to raise an alarm; one
+// given up paceSpan (30 s here) after the last starts a new episode.
+// fix-fx18a alarmed on every run: 20 alarms here.
+func TestClockJumpFlipsOneAlarmPerEpisode(t *testing.T) {
+	const t0 = 1796104800.0
+	a := newAssembler(time.Second, 2*time.Second, 3)
+	seq := uint64(0)
+	flip := func(d float64) {
+		seq++
+		if r := feedAt(a, 2, seq, t0+3000+d, t0+d+0.5); r != heldAhead {
+			t.Fatalf("s2's batch 3000 s ahead at %.1f s: %v, want heldAhead", d, r)
+		}
+	}
+	liveFeed(t, a, &seq, t0, 0, 2)
+	for step := 0; step < 20; step++ {
+		d := 2 + 0.1*float64(step)
+		flip(d)
+		liveFeed(t, a, &seq, t0, d, 0.1)
+	}
+	liveFeed(t, a, &seq, t0, 4, 40)
+	flip(44)
+	liveFeed(t, a, &seq, t0, 44, 1)
+	given, alarms := 0, 0
+	for _, j := range a.takeJumps() {
+		if j.given {
+			given++
+			if !j.repeat {
+				alarms++
+			}
+		}
+	}
+	if given != 21 || alarms != 2 {
+		t.Errorf("%d runs given up, %d to alarm; want 21 and 2 (one per episode)", given, alarms)
+	}
+}

@@ -76,6 +76,9 @@ type assembler struct {
 	// lists what became of such runs, for the caller to alarm.
 	ahead [][]heldBatch
 	jumps []clockJump
+	// gaveUp is, per sensor, when a run held as ahead of the clock was
+	// last given up (see giveUpAhead).
+	gaveUp []time.Time
 	// pace follows each sensor's data time against the broker's clock.
 	pace []paceTrack
 	// clock is the broker's clock when the batch being added was stored;
@@ -117,6 +120,7 @@ func newAssembler(window, grace time.Duration, sensors int) *assembler {
 	a.held = make([][]heldBatch, sensors)
 	a.ahead = make([][]heldBatch, sensors)
 	a.pace = make([]paceTrack, sensors)
+	a.gaveUp = make([]time.Time, sensors)
 	for i := range a.water {
 		a.water[i] = math.Inf(-1)
 	}

@@ -916,7 +916,8 @@ func (w *assetWorker) refuseRejected(now time.Time) error {
 
 // noteJumps raises a clock-jump alarm for each run of a sensor's batches
 // held as ahead of the broker's clock (see clockAhead) that was given up
-// or filed as dated, and logs those the clock reached. The alarm goes in
+// (one per episode: repeats are logged) or filed as dated, and logs those
+// the clock reached. The alarm goes in
 // the window after the last published one (or the asset's earliest
 // unpublished one), as data-lost does, so that the alarm history stays
 // in window order.
@@ -925,6 +926,11 @@ func (w *assetWorker) noteJumps() error {
 		sensor := w.asset.Sensors[j.sensor].Name
 		if !j.given && !j.confirmed {
 			w.log.Info("batches held as ahead of the broker's clock filed: "+j.why, "sensor", sensor, "from", unixString(j.from), "batches", j.batches)
+			continue
+		}
+		if j.repeat {
+			// The same episode as the sensor's last alarm: logged only.
+			w.log.Warn("sensor clock jump again", "sensor", sensor, "ahead_s", j.ahead, "given_up", j.given, "from", unixString(j.from), "batches", j.batches)
 			continue
 		}
 		var msg string
