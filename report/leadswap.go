@@ -366,6 +366,19 @@ func leadBySwap(fits []Fit, ac bool) {
 	if len(used) < 3 {
 		return
 	}
+	// A split conductor 1 is exchanged with its other share only where
+	// most groups resolve the two lines: cables 0.7-0.9 m apart are a
+	// split at every traverse but the one at the change, and there the
+	// split's sum, with the change on it, is the lead (the exchange put
+	// each cable's pieces on further conductors said to end, and lost
+	// the change: regression review rg17b).
+	splits := 0
+	for _, i := range used {
+		if splitPartner(&fits[i]) >= 0 {
+			splits++
+		}
+	}
+	splitsResolved := 2*splits < len(used)
 	// The tracks: conductor 1 lines joined where they agree in plan and
 	// one lies on the other carried on (onTrackOf).
 	root := make([]int, n)
@@ -560,7 +573,7 @@ func leadBySwap(fits []Fit, ac bool) {
 			}
 		}
 		pick := -1
-		if swapFree(g) || swap > 0 && swap == splitPartner(g) {
+		if swapFree(g) || splitsResolved && swap > 0 && swap == splitPartner(g) {
 			pick = swap
 		}
 		if pick < 0 {
