@@ -5,6 +5,7 @@ import (
 	"math"
 	"slices"
 	"sort"
+	"strconv"
 	"strings"
 	"testing"
 )
@@ -336,6 +337,98 @@ func TestGeoJSONDepthSaysItsReference(t *testing.T) {
 		}
 		if n == 0 {
 			t.Errorf("%s: no conductor checked", c.name)
+		}
+	}
+}
+
+// TestCSVFitStatusAndRealisticSpread: results.csv gave a failed fit's
+// current, depth and cover as numbers with nothing beside them but ok
+// false, and the realistic spread of a station's current and depth, which
+// the summary states, in no column (found in review). Appended columns,
+// the earlier ones unmoved: "fit" ("sound", "used with care" or "failed",
+// as fitStatus) on every row, and station_scatter_current_a and
+// station_scatter_depth_m on conductor 1's rows, which are the route's
+// between-station scatter, recomputed here from the rows' own currents
+// and depths by its definition (Route.StationScatterCurrent: 1.4826 times
+// the median absolute difference of successive used stations over
+// sqrt(2), pairs across the reported step left out; the 1.4826 of
+// Rousseeuw and Croux, J. Am. Stat. Assoc. 88(424), 1993); route.geojson's
+// route and conductor Points carry the same.
+func TestCSVFitStatusAndRealisticSpread(t *testing.T) {
+	// The columns before this change, in their order.
+	if i := slices.Index(csvHeader, "current_first_walk_sigma_a"); i != 49 || !slices.Equal(csvHeader[50:], []string{"fit", "station_scatter_current_a", "station_scatter_depth_m"}) {
+		t.Fatalf("columns moved: current_first_walk_sigma_a at %d, then %q", i, csvHeader[i+1:])
+	}
+	w := wickhamDoc(t, 5)
+	for _, r := range readCSV(t, w) {
+		g := w.Groups[slices.IndexFunc(w.Groups, func(g Group) bool { return g.Key == r["group"] })]
+		want := FitSound
+		switch {
+		case !g.OK:
+			want = FitFailed
+		case g.Problem != "":
+			want = FitWithCare
+		}
+		if r["fit"] != want || (want == FitFailed) != (r["ok"] == "false") {
+			t.Errorf("%s: fit %q ok %q, want %q", r["group"], r["fit"], r["ok"], want)
+		}
+	}
+
+	d := fenwickLane(true)
+	var steps [][2]float64
+	for _, f := range d.Findings {
+		if f.Kind == "current-step" {
+			steps = append(steps, [2]float64{f.ChainageFrom, f.ChainageTo})
+		}
+	}
+	if len(steps) == 0 {
+		t.Fatal("fixture: no current step")
+	}
+	var dI, dD []float64
+	var prevI, prevD, prevC float64
+	have := false
+	var cells [][2]string
+	for _, r := range readCSV(t, d) {
+		if r["conductor"] != "1" {
+			continue
+		}
+		cells = append(cells, [2]string{r["station_scatter_current_a"], r["station_scatter_depth_m"]})
+		if r["used"] != "true" {
+			continue
+		}
+		cur, _ := strconv.ParseFloat(r["current_a"], 64)
+		dep, _ := strconv.ParseFloat(r["depth_m"], 64)
+		ch, _ := strconv.ParseFloat(r["chainage_m"], 64)
+		cur = math.Abs(cur) // each row's current is signed along its own azimuth
+		if have && !slices.ContainsFunc(steps, func(s [2]float64) bool { return prevC < s[1] && ch > s[0] }) {
+			dI = append(dI, math.Abs(cur-prevI))
+			dD = append(dD, math.Abs(dep-prevD))
+		}
+		prevI, prevD, prevC, have = cur, dep, ch, true
+	}
+	scale := 1.4826 / math.Sqrt2
+	wantI, wantD := scale*median(dI), scale*median(dD)
+	if len(cells) == 0 {
+		t.Fatal("no conductor-1 rows")
+	}
+	// The rows' currents and depths are written to 1e-4 (two digits past
+	// their sigmas' leading ones): a difference of two is off by up to
+	// 1e-4, and the scatter by up to scale times that.
+	tol := scale * 1e-4
+	for _, c := range cells {
+		gi, err1 := strconv.ParseFloat(c[0], 64)
+		gd, err2 := strconv.ParseFloat(c[1], 64)
+		if err1 != nil || err2 != nil || math.Abs(gi-wantI) > tol || math.Abs(gd-wantD) > tol {
+			t.Errorf("station_scatter_current_a %q, station_scatter_depth_m %q; from the rows %.6g A and %.6g m", c[0], c[1], wantI, wantD)
+		}
+	}
+	for _, p := range rfc7946Check(t, d, 0.01) {
+		if p["feature"] == "route" || p["feature"] == "conductor" && p["conductor"] == 1.0 {
+			gi, _ := p["station_scatter_current_a"].(float64)
+			gd, _ := p["station_scatter_depth_m"].(float64)
+			if math.Abs(gi-wantI) > tol || math.Abs(gd-wantD) > tol {
+				t.Errorf("route.geojson %v %v: scatter %v A, %v m", p["feature"], p["group"], p["station_scatter_current_a"], p["station_scatter_depth_m"])
+			}
 		}
 	}
 }

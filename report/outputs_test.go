@@ -567,16 +567,16 @@ func TestWriteFindingsCSV(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if len(rows) != len(d.Findings)+len(Cautions)+1 {
-		t.Fatalf("%d rows, want the header, %d cautions and %d", len(rows), len(Cautions), len(d.Findings))
+	if len(rows) != len(d.Findings)+len(Cautions)+len(d.Warnings)+1 {
+		t.Fatalf("%d rows, want the header, %d cautions, %d run warnings and %d", len(rows), len(Cautions), len(d.Warnings), len(d.Findings))
 	}
 	col := map[string]int{}
 	for i, h := range rows[0] {
 		col[h] = i
 	}
-	// The cautions come first (TestCautionsInEveryCrewFile), then the
-	// findings.
-	rows = append(rows[:1], rows[1+len(Cautions):]...)
+	// The cautions and the run's warnings come first
+	// (TestCautionsInEveryCrewFile), then the findings.
+	rows = append(rows[:1], rows[1+len(Cautions)+len(d.Warnings):]...)
 	r := rows[1]
 	for name, want := range map[string]string{
 		"severity": "warning", "kind": "current-step", "conductor": "1", "chainage_from_m": "90.000",
