@@ -17,7 +17,8 @@ import (
 // GeoJSON a foreign member, which RFC 7946 section 6.1 allows at the top
 // level of a FeatureCollection), and findings.csv in its first rows, kind
 // "safety", with the header's column count (RFC 4180: each record the same
-// number of fields), so that the file still reads as a table.
+// number of fields), so that the file still reads as a table; the run's
+// warnings follow them in findings.csv, kind "run-warning".
 func TestCautionsInEveryCrewFile(t *testing.T) {
 	for _, geo := range []bool{false, true} {
 		d := fenwickLane(geo)
@@ -52,8 +53,11 @@ func TestCautionsInEveryCrewFile(t *testing.T) {
 		if err != nil {
 			t.Fatalf("findings.csv: %v", err)
 		}
-		if len(rows) != 1+len(Cautions)+len(d.Findings) {
-			t.Fatalf("findings.csv has %d rows, want the header, %d cautions and %d findings", len(rows), len(Cautions), len(d.Findings))
+		if len(d.Warnings) == 0 {
+			t.Fatal("fixture: the document has no run warnings")
+		}
+		if len(rows) != 1+len(Cautions)+len(d.Warnings)+len(d.Findings) {
+			t.Fatalf("findings.csv has %d rows, want the header, %d cautions, %d run warnings and %d findings", len(rows), len(Cautions), len(d.Warnings), len(d.Findings))
 		}
 		col := map[string]int{}
 		for i, h := range rows[0] {
@@ -70,8 +74,16 @@ func TestCautionsInEveryCrewFile(t *testing.T) {
 				}
 			}
 		}
+		// Then the run's warnings, kind "run-warning": they were in
+		// results.json and report.html alone (found in review).
+		for i, w := range d.Warnings {
+			row := rows[1+len(Cautions)+i]
+			if row[col["severity"]] != SeverityWarning || row[col["kind"]] != RunWarningKind || row[col["message"]] != w {
+				t.Errorf("findings.csv row %d = %q, want the run warning %q", 2+len(Cautions)+i, row, w)
+			}
+		}
 		// The findings follow, as before.
-		if first := rows[1+len(Cautions)]; first[col["kind"]] != d.Findings[0].Kind || first[col["message"]] != d.Findings[0].Message {
+		if first := rows[1+len(Cautions)+len(d.Warnings)]; first[col["kind"]] != d.Findings[0].Kind || first[col["message"]] != d.Findings[0].Message {
 			t.Errorf("the first finding row is %q, want %s %q", first, d.Findings[0].Kind, d.Findings[0].Message)
 		}
 

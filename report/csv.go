@@ -1,7 +1,6 @@
 package report
 
 import (
-	"bytes"
 	"encoding/csv"
 	"fmt"
 	"io"
@@ -31,7 +30,18 @@ import (
 // currents that differ by one change or ratio per walk (Route.FirstWalk),
 // the station's current at the first walk's level, as the steps, the
 // summary and the current plot take it (Station.CurrentFirstWalk); empty
-// otherwise (they were in results.json alone, found in review).
+// otherwise (they were in results.json alone, found in review). fit is
+// what the group's fit is worth (fitStatus): "sound", "used with care"
+// (ok with a problem) or "failed" (ok false: its current, depth and cover
+// mean nothing, and a script drops the row), on every row of the group;
+// before, a failed fit's numbers read as usable to any program that did
+// not also read ok (found in review). station_scatter_current_a and
+// station_scatter_depth_m are, on the rows of a conductor's stations
+// (conductor not empty), the realistic spread of one station's current
+// and depth along that conductor's route (Route.StationScatterCurrent and
+// StationScatterDepth, as results.json names them; cover's is depth's),
+// which the fits' sigmas, counting the reading noise alone, understate;
+// empty where the route has too few pairs of used stations to give one.
 var csvHeader = []string{
 	"chainage_m", "route_chainage_m", "group", "source", "conductor", "kind", "signal",
 	"current_a", "current_sigma_a", "phase_deg", "phase_sigma_deg",
@@ -47,6 +57,7 @@ var csvHeader = []string{
 	"sum_current_a", "sum_current_sigma_a", "sum_phase_deg", "sum_phase_sigma_deg",
 	"uncertainty_note",
 	"current_first_walk_a", "current_first_walk_sigma_a",
+	"fit", "station_scatter_current_a", "station_scatter_depth_m",
 }
 
 // csvCol maps a column name of csvHeader to its index.
@@ -95,11 +106,14 @@ var csvCol = func() map[string]int {
 // empty for a row that is no station of a conductor's route (a
 // magnetised object, a line no track follows, a survey without a route).
 //
-// When any of its text is not ASCII (a group named "Süd-01", a problem
-// with "±" in it), the file starts with a UTF-8 byte order mark (EF BB BF),
-// as findings.csv always does, so that spreadsheets that otherwise guess a
-// legacy code page show the text as written; a file of ASCII alone has
-// none, and reads the same either way. Lines end in LF, as findings.csv's.
+// The file is UTF-8 without a byte order mark, whatever its text: it is a
+// data table for programs, most of whose CSV readers (Go's encoding/csv,
+// Python's csv with encoding "utf-8", R's read.csv) take a byte order
+// mark for part of the first column's name. Before, it started with one
+// only when some cell was not ASCII (a "±" in a problem), so that the
+// first column was "chainage_m" on one run and "\ufeffchainage_m" on the
+// next (found in review). findings.csv, the crew's spreadsheet, keeps its
+// mark. Lines end in LF, as findings.csv's.
 //
 // Sigmas have six significant digits, so that none is rounded to zero;
 // each value carries two decimals past its sigma's leading digit (and at
@@ -119,10 +133,7 @@ func WriteCSV(w io.Writer, d *Document) error {
 	if err := d.Validate(); err != nil {
 		return err
 	}
-	// Written whole to a buffer first: the byte order mark goes in front
-	// only when the text is not plain ASCII.
-	var buf bytes.Buffer
-	cw := csv.NewWriter(&buf)
+	cw := csv.NewWriter(w)
 	if err := cw.Write(csvHeader); err != nil {
 		return fmt.Errorf("report: writing CSV: %w", err)
 	}
@@ -156,6 +167,7 @@ func WriteCSV(w io.Writer, d *Document) error {
 				set("dof", strconv.Itoa(g.DOF))
 			}
 			set("ok", strconv.FormatBool(g.OK))
+			set("fit", fitStatus(&g))
 			set("problem", textCell(g.Problem))
 			if slices.Contains(g.Notes, inverse.RobustNote) {
 				set("uncertainty_note", inverse.RobustNote)
@@ -180,6 +192,10 @@ func WriteCSV(w io.Writer, d *Document) error {
 			set := func(col, v string) { row[csvCol[col]] = v }
 			if c := sourceConductor(d, &g, i, &s); c > 0 {
 				set("conductor", strconv.Itoa(c))
+				if r := d.conductorRoute(c); r != nil && r.StationScatterCurrent != nil && r.StationScatterDepth != nil {
+					set("station_scatter_current_a", sig(*r.StationScatterCurrent))
+					set("station_scatter_depth_m", sig(*r.StationScatterDepth))
+				}
 			}
 			if c := d.sourceChainage(&g, &s); c != nil {
 				set("chainage_m", fix(*c, 3))
@@ -268,14 +284,6 @@ func WriteCSV(w io.Writer, d *Document) error {
 	if err := cw.Error(); err != nil {
 		return fmt.Errorf("report: writing CSV: %w", err)
 	}
-	if !isASCII(buf.Bytes()) {
-		if _, err := io.WriteString(w, utf8BOM); err != nil {
-			return fmt.Errorf("report: writing CSV: %w", err)
-		}
-	}
-	if _, err := buf.WriteTo(w); err != nil {
-		return fmt.Errorf("report: writing CSV: %w", err)
-	}
 	return nil
 }
 
@@ -298,16 +306,6 @@ func textCell(s string) string {
 		return "'" + s
 	}
 	return s
-}
-
-// isASCII reports whether b holds 7-bit ASCII only.
-func isASCII(b []byte) bool {
-	for _, c := range b {
-		if c >= 0x80 {
-			return false
-		}
-	}
-	return true
 }
 
 // sourceConductor is the number of the conductor along the route that

@@ -18,8 +18,10 @@
 //
 // The safety cautions (Cautions) go into every file a crew may be given
 // alone: report.html opens with them, results.json and route.geojson carry
-// them in a top-level "cautions" array, and findings.csv in its first rows
-// (kind "safety"); results.csv is a data table without them.
+// them in a top-level "cautions" array (route.geojson also in a "caution"
+// property, their short form, on every feature, since map viewers drop
+// top-level members), and findings.csv in its first rows (kind "safety");
+// results.csv is a data table without them.
 //
 // Every writer validates the document first (Document.Validate) and writes
 // nothing when it is invalid, so a NaN never reaches a file. The writers

@@ -31,8 +31,8 @@ func ExampleWriteCSV() {
 		fmt.Println(err)
 	}
 	// Output:
-	// chainage_m,route_chainage_m,group,source,conductor,kind,signal,current_a,current_sigma_a,phase_deg,phase_sigma_deg,depth_m,depth_sigma_m,depth_reference,cover_m,cover_sigma_m,moment_a_m2,moment_sigma_a_m2,east_m,north_m,up_m,lon_deg,lat_deg,azimuth_deg,azimuth_sigma_deg,dip_deg,dip_sigma_deg,offset_m,offset_sigma_m,points,rms_nt,reference_chi2,dof,ok,problem,used,left_out,pair_current_times_spacing_am,pair_current_times_spacing_sigma_am,pair_net_current_a,pair_net_current_sigma_a,pair_net_current_phase_deg,pair_net_current_phase_sigma_deg,sum_current_a,sum_current_sigma_a,sum_phase_deg,sum_phase_sigma_deg,uncertainty_note,current_first_walk_a,current_first_walk_sigma_a
-	// ,,,1,1,line,dc,12.3100,0.04,,,1.12000,0.006,mean-sensor-height,0.82000,0.006,,,2.410,0.000,-1.120,,,0.400,0.3,0.00,,0.000,,41,4.8,,,true,,,,,,,,,,,,,,,,
+	// chainage_m,route_chainage_m,group,source,conductor,kind,signal,current_a,current_sigma_a,phase_deg,phase_sigma_deg,depth_m,depth_sigma_m,depth_reference,cover_m,cover_sigma_m,moment_a_m2,moment_sigma_a_m2,east_m,north_m,up_m,lon_deg,lat_deg,azimuth_deg,azimuth_sigma_deg,dip_deg,dip_sigma_deg,offset_m,offset_sigma_m,points,rms_nt,reference_chi2,dof,ok,problem,used,left_out,pair_current_times_spacing_am,pair_current_times_spacing_sigma_am,pair_net_current_a,pair_net_current_sigma_a,pair_net_current_phase_deg,pair_net_current_phase_sigma_deg,sum_current_a,sum_current_sigma_a,sum_phase_deg,sum_phase_sigma_deg,uncertainty_note,current_first_walk_a,current_first_walk_sigma_a,fit,station_scatter_current_a,station_scatter_depth_m
+	// ,,,1,1,line,dc,12.3100,0.04,,,1.12000,0.006,mean-sensor-height,0.82000,0.006,,,2.410,0.000,-1.120,,,0.400,0.3,0.00,,0.000,,41,4.8,,,true,,,,,,,,,,,,,,,,,sound,,
 }
 
 func ExampleWriteGeoJSON() {
@@ -45,7 +45,7 @@ func ExampleWriteGeoJSON() {
 	// Output:
 	// {"type":"FeatureCollection","cautions":["These are estimates computed from magnetic field readings, not a verified locate.","Confirm the position and depth of every conductor by approved methods before any excavation.","Treat every conductor as live, whatever current this report estimates.","Local codes, permits and licensed practice prevail over anything in this report."],"coordinate_frame":"wgs84","local_origin":{"lat_deg":52.4719,"lon_deg":0.1623,"height_m":3},"depth_reference":{"kind":"mean-sensor-height","z_m":0,"sensor_height_m":0.3},"signal":{"mode":"dc","current":"DC amperes, signed along the Point's azimuth_deg: negative flows the other way (a pair conductor's net_current_a along the pair's azimuth_deg)"},
 	// "features":[
-	// {"type":"Feature","geometry":{"type":"Point","coordinates":[0.16233547,52.47190000]},"properties":{"azimuth_deg":0.400,"azimuth_sigma_deg":0.3,"conductor":1,"cover_m":0.82000,"cover_sigma_m":0.006,"current_a":12.3100,"current_sigma_a":0.04,"depth_m":1.12000,"depth_reference":"mean-sensor-height","depth_sigma_m":0.006,"feature":"conductor","group":"","ok":true,"source":1,"span_m":[-10.000,10.000]}}
+	// {"type":"Feature","geometry":{"type":"Point","coordinates":[0.16233547,52.47190000]},"properties":{"azimuth_deg":0.400,"azimuth_sigma_deg":0.3,"caution":"Estimates from magnetic readings, not a verified locate: confirm every position and depth by approved methods before any excavation; treat every conductor as live.","conductor":1,"cover_m":0.82000,"cover_sigma_m":0.006,"current_a":12.3100,"current_sigma_a":0.04,"depth_m":1.12000,"depth_note":"depth_m is the depth below the sensors, not below the ground: the sensors were 0.30 m above the ground, so cover_m, the depth below ground, is 0.30 m less.","depth_reference":"mean-sensor-height","depth_sigma_m":0.006,"feature":"conductor","fit":"sound","group":"","ok":true,"source":1,"span_m":[-10.000,10.000]}}
 	// ]}
 }
 

@@ -30,9 +30,15 @@ var findingsHeader = []string{
 // report carries (Cautions), one row each with severity "caution", kind
 // "safety" (SafetyKind, which no finding has), the caution in message and
 // every other column empty, so that a crew given only the spreadsheet
-// reads them first; a program wanting the findings alone skips the rows
-// of kind "safety". A document with no findings gives the header and the
-// cautions.
+// reads them first. Then come the run's warnings (Document.Warnings: the
+// residuals of some fits correlated, rows skipped, readings clipped), one
+// row each with severity "warning", kind "run-warning" (RunWarningKind)
+// and the warning in message, every other column empty: they were in
+// results.json and the crew report alone, and a crew given only the
+// spreadsheet missed them (found in review). A program wanting the
+// findings alone skips the rows of kind "safety" and "run-warning". A
+// document with no findings gives the header, the cautions and the
+// warnings.
 //
 // The file starts with a UTF-8 byte order mark (EF BB BF), so that
 // spreadsheets that otherwise guess a legacy code page show "±" and "°"
@@ -57,6 +63,13 @@ func WriteFindingsCSV(w io.Writer, d *Document) error {
 	for _, c := range Cautions {
 		row := make([]string, len(findingsHeader))
 		row[0], row[1], row[len(row)-1] = SeverityCaution, SafetyKind, c
+		if err := cw.Write(row); err != nil {
+			return fmt.Errorf("report: writing findings CSV: %w", err)
+		}
+	}
+	for _, m := range d.Warnings {
+		row := make([]string, len(findingsHeader))
+		row[0], row[1], row[len(row)-1] = SeverityWarning, RunWarningKind, textCell(m)
 		if err := cw.Write(row); err != nil {
 			return fmt.Errorf("report: writing findings CSV: %w", err)
 		}
@@ -106,6 +119,10 @@ func WriteFindingsCSV(w io.Writer, d *Document) error {
 // SafetyKind is the kind of the rows of findings.csv that hold the
 // safety cautions (Cautions) rather than a finding.
 const SafetyKind = "safety"
+
+// RunWarningKind is the kind of the rows of findings.csv that hold the
+// run's warnings (Document.Warnings) rather than a finding.
+const RunWarningKind = "run-warning"
 
 // utf8BOM is the UTF-8 encoding of U+FEFF, the byte order mark.
 const utf8BOM = "\uFEFF"

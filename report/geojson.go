@@ -32,7 +32,20 @@ const (
 // results.json's signal), "current" in words (DC signed along the Point's
 // azimuth_deg, or AC RMS) and, for AC, "phase_reference" (geoSignal). The
 // top-level member "cautions" (a foreign member, RFC 7946 section 6.1)
-// holds Cautions, so that a crew given only this layer has them.
+// holds Cautions, and "warnings" the run's warnings (Document.Warnings),
+// when there are any.
+//
+// Map viewers show a feature's properties and drop a FeatureCollection's
+// foreign members, so every feature also carries "caution"
+// (CautionShort), "run_warnings" (Document.Warnings, when there are any)
+// and, without a geodetic origin, "coordinate_note" (GeoJSONLocalNote):
+// in review a crew given this layer in a viewer saw no caution at all.
+//
+// Writing local metres as coordinates breaks RFC 7946's WGS84 rule; the
+// file is written all the same, marked as above, since it is the only
+// layer of the route a GIS can take in a frame of its user's choosing
+// (and the command line warns when it writes one: locate's
+// localGeoJSONWarning).
 //
 // Features, each with a "feature" property naming what it is:
 //
@@ -43,8 +56,19 @@ const (
 //     (Document.Conductors), with its number in "conductor" and its median
 //     offset from conductor 1 in offset_m; where stations the route
 //     left out break or interrupt the line, "not_used" lists their group
-//     keys and "gap_note" says why in words;
-//   - "conductor": one Point per line source, at the point on the
+//     keys and "gap_note" says why in words; each route and the Points of
+//     its conductor carry its realistic spread, station_scatter_current_a
+//     and station_scatter_depth_m (Route.StationScatterCurrent), when it
+//     has one;
+//   - "route past unused station": the stretch of a conductor's route
+//     across stations it left out between two used ones (routeBridges),
+//     so that the line does not vanish where the conductor runs;
+//   - "failed fit": one Point per group whose fit failed (Group.OK
+//     false), at the centre of its readings, with "fit": "failed" and none
+//     of the fit's numbers (failedFitFeature); its sources get no
+//     "conductor" Point;
+//   - "conductor": one Point per line source (of a fit that did not
+//     fail), at the point on the
 //     conductor nearest the group's readings (point_m) or, where the
 //     source is a route station placed elsewhere, at the station, with its
 //     depth and cover (rowPlace: the centre of a same-way split whose sum
@@ -55,7 +79,8 @@ const (
 //     findings about that conductor give it, else along the route),
 //     route_chainage_m (the group's, along the route), current, phase,
 //     depth, depth_reference (DepthReference.Kind, what depth_m is
-//     measured from), cover and their sigmas, the azimuth (the
+//     measured from) and depth_note (the same in words, geoDepthNote),
+//     cover and their sigmas, fit (fitStatus), the azimuth (the
 //     conductor's bearing there, for a GIS to orient a symbol), the span of conductor the readings see along that bearing
 //     (span_m), the group's ok and problem, "conductor": 1 for the
 //     conductor the route follows, the track's number for a further
@@ -93,8 +118,8 @@ const (
 // exact. The route's lines run only through stations
 // the route used (Station.Used), so that each station is drawn once, at
 // its fitted conductor: with fewer than two used stations in a row there
-// is no line, and the points of the failed fits stay as "conductor"
-// features with "ok": false and their problem.
+// is no line; the stretches across the stations left out are features of
+// their own ("route past unused station").
 func WriteGeoJSON(w io.Writer, d *Document) error {
 	if err := d.Validate(); err != nil {
 		return err
@@ -125,7 +150,21 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 			fc.Features = append(fc.Features, f)
 		}
 	}
+	if r := d.Route; r != nil {
+		fc.Features = append(fc.Features, d.routeBridges(r, 1)...)
+	}
+	for k := range d.Conductors {
+		t := &d.Conductors[k]
+		fc.Features = append(fc.Features, d.routeBridges(&t.Route, t.Number)...)
+	}
+	depthNote := d.geoDepthNote()
 	for _, g := range d.Groups {
+		if !g.OK {
+			// A failed fit: one Point at the centre of its readings,
+			// with nothing the fit estimated (failedFitFeature).
+			fc.Features = append(fc.Features, d.failedFitFeature(&g))
+			continue
+		}
 		for i, s := range g.Sources {
 			at, depth, depthSigma, _ := d.rowPlace(&g, i, &s)
 			props := map[string]any{
@@ -133,9 +172,14 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 				"source":  i + 1,
 				"depth_m": roundSig(depth, depthSigma, 3),
 				"ok":      g.OK,
+				"fit":     fitStatus(&g),
 			}
 			putSigma(props, "depth_sigma_m", depthSigma)
 			props["depth_reference"] = d.DepthReference.Kind
+			props["depth_note"] = depthNote
+			if r := d.conductorRoute(sourceConductor(d, &g, i, &s)); r != nil {
+				putScatter(props, r)
+			}
 			if g.Problem != "" {
 				props["problem"] = g.Problem
 			}
@@ -268,17 +312,30 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 		}
 		fc.Features = append(fc.Features, feature{Type: "Feature", Geometry: d.point(f.Position), Properties: props})
 	}
+	// What a map viewer must show with every feature: viewers drop a
+	// FeatureCollection's foreign members, so the cautions, the run's
+	// warnings and, without an origin, the frame go on each feature too.
+	for _, f := range fc.Features {
+		f.Properties["caution"] = CautionShort
+		if len(d.Warnings) > 0 {
+			f.Properties["run_warnings"] = d.Warnings
+		}
+		if fc.Frame == GeoJSONLocal {
+			f.Properties["coordinate_note"] = GeoJSONLocalNote
+		}
+	}
 	// One feature per line: compact, and readable in a diff.
 	var buf bytes.Buffer
 	buf.WriteString(`{"type":"FeatureCollection",`)
 	head, err := json.Marshal(struct {
 		Cautions []string       `json:"cautions"`
+		Warnings []string       `json:"warnings,omitempty"`
 		Frame    string         `json:"coordinate_frame"`
 		Note     string         `json:"coordinate_note,omitempty"`
 		Origin   *Origin        `json:"local_origin,omitempty"`
 		Depth    DepthReference `json:"depth_reference"`
 		Signal   geoSignal      `json:"signal"`
-	}{Cautions, fc.Frame, fc.Note, fc.Origin, d.DepthReference, d.geoSignalOf()})
+	}{Cautions, d.Warnings, fc.Frame, fc.Note, fc.Origin, d.DepthReference, d.geoSignalOf()})
 	if err != nil {
 		return fmt.Errorf("report: GeoJSON: %w", err)
 	}
@@ -584,11 +641,13 @@ func (d *Document) routeFeature(r *Route, props map[string]any) (f feature, ok b
 	props["feature"] = "route"
 	props["length_m"] = round(length, 3)
 	props["stations"] = n
+	putScatter(props, r)
 	geom := geometry{Type: "LineString", Coordinates: json.RawMessage(lines[0])}
 	if len(gaps) > 0 {
 		props["not_used"] = gaps
 		props["gap_note"] = "The line is broken where the route left a station out of its current and cover profile (" +
-			strings.Join(why, "; ") + "); that station's conductor Point has \"used\": false."
+			strings.Join(why, "; ") + "); that station's Point has \"used\": false. The conductor is not taken to stop there: " +
+			"a feature \"" + featureBridge + "\" draws the stretch between the stations either side."
 	}
 	if len(parts) > 1 {
 		props["parts"] = len(parts)
@@ -600,4 +659,186 @@ func (d *Document) routeFeature(r *Route, props map[string]any) (f feature, ok b
 		geom = geometry{Type: "MultiLineString", Coordinates: json.RawMessage("[" + string(bytes.Join(lines, []byte{','})) + "]")}
 	}
 	return feature{Type: "Feature", Geometry: geom, Properties: props}, true
+}
+
+// GeoJSONLocalNote is the coordinate_note every feature of a GeoJSON
+// file without a geodetic origin carries, since map viewers drop the
+// FeatureCollection's own "coordinate_note".
+const GeoJSONLocalNote = "Coordinates are metres east and north of a local origin, not longitude and latitude: " +
+	"a map viewer takes them for degrees and places this feature wrongly."
+
+// featureBridge is the "feature" property of a stretch of a conductor's
+// route across stations the route left out (routeBridges).
+const featureBridge = "route past unused station"
+
+// Fit statuses, as route.geojson's "fit" property and results.csv's
+// fit column give them (fitStatus).
+const (
+	FitSound    = "sound"
+	FitWithCare = "used with care"
+	FitFailed   = "failed"
+)
+
+// fitStatus is what g's fit is worth: FitFailed when it failed or found
+// no current (Group.OK false: its numbers mean nothing), FitWithCare when
+// it converged with a problem (poor or ambiguous, Group.Problem), else
+// FitSound.
+func fitStatus(g *Group) string {
+	switch {
+	case !g.OK:
+		return FitFailed
+	case g.Problem != "":
+		return FitWithCare
+	}
+	return FitSound
+}
+
+// conductorRoute is the route of conductor n (1 for Document.Route, a
+// further conductor's Track.Route), nil for 0 or a number not followed.
+func (d *Document) conductorRoute(n int) *Route {
+	if n == 1 {
+		return d.Route
+	}
+	for k := range d.Conductors {
+		if n > 1 && d.Conductors[k].Number == n {
+			return &d.Conductors[k].Route
+		}
+	}
+	return nil
+}
+
+// putScatter sets the realistic spread of route r's stations
+// (Route.StationScatterCurrent and StationScatterDepth, named as
+// results.json names them) in props, when r has one.
+func putScatter(props map[string]any, r *Route) {
+	if r.StationScatterCurrent != nil && r.StationScatterDepth != nil {
+		props["station_scatter_current_a"] = sigNum(*r.StationScatterCurrent)
+		props["station_scatter_depth_m"] = sigNum(*r.StationScatterDepth)
+	}
+}
+
+// geoDepthNote says in words what every depth_m of the GeoJSON is
+// measured from and how it stands to the cover, for a map viewer's
+// pop-up: a depth below the sensors labelled "depth_m" reads as depth
+// below ground, which is the deeper by the sensors' height (found in
+// review: "depth 0.70 m" over a cable with 0.40 m of cover).
+func (d *Document) geoDepthNote() string {
+	r := d.DepthReference
+	switch {
+	case r.Kind == DepthBelowGround:
+		return "depth_m is the depth below the ground surface given, the same as cover_m."
+	case r.SensorHeight > 0:
+		h := fix(r.SensorHeight, 2)
+		return "depth_m is the depth below the sensors, not below the ground: the sensors were " + h +
+			" m above the ground, so cover_m, the depth below ground, is " + h + " m less."
+	}
+	return "depth_m is the depth below the sensors, not below the ground: their height above the ground was not given, " +
+		"so the cover (the depth below ground) is less than depth_m by that height and is not computed."
+}
+
+// failedFitFeature is the Point of group g whose fit failed (Group.OK
+// false: it found no current the readings determine, or fitted nothing):
+// "feature": "failed fit", at the centre of the group's readings (its
+// Centroid, where the readings were taken, not a conductor), with the
+// group, its chainage, "fit": "failed", its problem, used and left_out
+// as for a conductor, and a note saying not to read it as a conductor.
+// It carries no current, depth, cover, azimuth or sigma: a failed fit's
+// numbers mean nothing, and a Point labelled "conductor, cover 0.64 m"
+// stood 14 m past a conductor's end over empty ground (found in review).
+// results.json keeps the fit's numbers in the group's sources.
+func (d *Document) failedFitFeature(g *Group) feature {
+	props := map[string]any{
+		"feature": "failed fit",
+		"group":   g.Key,
+		"ok":      false,
+		"fit":     FitFailed,
+		"note": "The fit at this group failed: it found no conductor its readings determine, and its numbers mean nothing here. " +
+			"This Point is the centre of the group's readings, not a conductor: do not use it as a conductor's position, depth or current.",
+	}
+	if g.Problem != "" {
+		props["problem"] = g.Problem
+	}
+	if g.Chainage != nil {
+		props["chainage_m"] = round(*g.Chainage, 3)
+		props["route_chainage_m"] = round(*g.Chainage, 3)
+	}
+	var first *Source
+	if len(g.Sources) > 0 {
+		first = &g.Sources[0]
+	}
+	if st := d.stationOf(g, 0, first); st != nil {
+		props["used"] = st.Used
+		if why := d.leftOut(st, 0); why != "" {
+			props["left_out"] = why
+		}
+	}
+	return feature{Type: "Feature", Geometry: d.point(g.Centroid), Properties: props}
+}
+
+// routeBridges are the stretches of route r (of conductor n: 1 for the
+// route, else a further conductor's Track.Number) across the stations the
+// route left out between two used ones, one LineString feature each,
+// "feature": featureBridge. routeFeature's line breaks at such a station,
+// and a map showed a gap where the conductor certainly runs (a 10 m gap
+// in an 11 kV cable at a magnetised object, whose line fit was sound;
+// found in review), while the crew report's plan draws the stretch
+// dotted. Each runs from the used station before to the used station
+// after, through the fitted conductor of a station left out for a
+// magnetised object (its line fit is sound) and straight past any other
+// (a failed fit's point means nothing). Its properties: conductor,
+// from_group and to_group, not_used (the stations crossed), length_m
+// (along the chainage), used false, passes_magnetised_object (true when
+// a station crossed was left out for an object) and a note in words.
+func (d *Document) routeBridges(r *Route, n int) []feature {
+	conductor := n
+	if n == 1 {
+		conductor = 0 // whyLeftOut's number for the route's conductor
+	}
+	var out []feature
+	prev := -1
+	for i := range r.Stations {
+		if !r.Stations[i].Used {
+			continue
+		}
+		if prev >= 0 && i > prev+1 {
+			a, b := &r.Stations[prev], &r.Stations[i]
+			pts := [][3]float64{a.Point}
+			var keys, why []string
+			object, other := false, false
+			for k := prev + 1; k < i; k++ {
+				st := &r.Stations[k]
+				keys = append(keys, st.Key)
+				why = append(why, st.Key+": "+d.leftOut(st, conductor))
+				if d.whyLeftOut(st, conductor) == leftObject {
+					object = true
+					pts = append(pts, st.Point)
+				} else {
+					other = true
+				}
+			}
+			pts = append(pts, b.Point)
+			note := "The conductor is taken to run on between " + a.Key + " and " + b.Key + ", across stations the route left out of its current and cover profile (" +
+				strings.Join(why, "; ") + ")."
+			if object {
+				note += " The line passes through the fitted conductor of each station left out for a magnetised object found there, whose line fit is sound."
+			}
+			if other {
+				note += " It is drawn straight past a station whose fit does not place the conductor: its position there is less certain than at a used station."
+			}
+			props := map[string]any{
+				"feature":                  featureBridge,
+				"conductor":                n,
+				"from_group":               a.Key,
+				"to_group":                 b.Key,
+				"not_used":                 keys,
+				"length_m":                 round(b.Chainage-a.Chainage, 3),
+				"used":                     false,
+				"passes_magnetised_object": object,
+				"note":                     note,
+			}
+			out = append(out, feature{Type: "Feature", Geometry: d.line(pts), Properties: props})
+		}
+		prev = i
+	}
+	return out
 }

@@ -567,16 +567,16 @@ func TestWriteFindingsCSV(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if len(rows) != len(d.Findings)+len(Cautions)+1 {
-		t.Fatalf("%d rows, want the header, %d cautions and %d", len(rows), len(Cautions), len(d.Findings))
+	if len(rows) != len(d.Findings)+len(Cautions)+len(d.Warnings)+1 {
+		t.Fatalf("%d rows, want the header, %d cautions, %d run warnings and %d", len(rows), len(Cautions), len(d.Warnings), len(d.Findings))
 	}
 	col := map[string]int{}
 	for i, h := range rows[0] {
 		col[h] = i
 	}
-	// The cautions come first (TestCautionsInEveryCrewFile), then the
-	// findings.
-	rows = append(rows[:1], rows[1+len(Cautions):]...)
+	// The cautions and the run's warnings come first
+	// (TestCautionsInEveryCrewFile), then the findings.
+	rows = append(rows[:1], rows[1+len(Cautions)+len(d.Warnings):]...)
 	r := rows[1]
 	for name, want := range map[string]string{
 		"severity": "warning", "kind": "current-step", "conductor": "1", "chainage_from_m": "90.000",
@@ -689,7 +689,7 @@ func TestLoneLineFinding(t *testing.T) {
 // report says plainly that no conductor was found and does not say one
 // was traced, and route.geojson (RFC 7946) has no route LineString and no
 // sigma written as 0 (a failed fit's unestimated sigmas would read as
-// exact), while staying a FeatureCollection with a Point per failed fit.
+// exact), while staying a FeatureCollection with a Point per failed fit ("feature": "failed fit").
 // With the currents restored the same route is traced, as a control; with
 // G05's alone, the report says a conductor was found at one station.
 func TestNoConductorFound(t *testing.T) {
@@ -728,7 +728,7 @@ func TestNoConductorFound(t *testing.T) {
 				t.Errorf("the crew report does not say plainly that no conductor was found: %q", html[max(i-20, 0):min(i+200, len(html))])
 			}
 		}
-		routes, points := 0, 0
+		routes, points, failed := 0, 0, 0
 		for _, f := range geoFeatures(t, d) {
 			switch f.Properties["feature"] {
 			case "route":
@@ -737,6 +737,13 @@ func TestNoConductorFound(t *testing.T) {
 				points++
 				if f.Geometry.Type != "Point" {
 					t.Errorf("conductor feature geometry %s", f.Geometry.Type)
+				}
+			case "failed fit":
+				// A failed fit is no conductor: its Point carries none
+				// of the fit's numbers (TestGeoJSONFailedFitIsNoConductor).
+				failed++
+				if f.Geometry.Type != "Point" || f.Properties["fit"] != FitFailed {
+					t.Errorf("failed fit feature %v: geometry %s, fit %v", f.Properties["group"], f.Geometry.Type, f.Properties["fit"])
 				}
 			}
 			for k, v := range f.Properties {
@@ -752,8 +759,14 @@ func TestNoConductorFound(t *testing.T) {
 		if found && keep != 4 { // one used station draws no line, only its Point
 			wantRoutes = 1
 		}
-		if routes != wantRoutes || points != len(fits) {
-			t.Errorf("found %v: %d route and %d conductor features, want %d and %d", found, routes, points, wantRoutes, len(fits))
+		nFailed := 0
+		for _, g := range d.Groups {
+			if !g.OK {
+				nFailed++
+			}
+		}
+		if routes != wantRoutes || points != len(fits)-nFailed || failed != nFailed {
+			t.Errorf("found %v: %d route, %d conductor and %d failed-fit features, want %d, %d and %d", found, routes, points, failed, wantRoutes, len(fits)-nFailed, nFailed)
 		}
 	}
 }

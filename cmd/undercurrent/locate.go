@@ -458,15 +458,38 @@ Examples:
 				for _, n := range doc.Notes {
 					fmt.Fprintf(stderr, "note: %s\n", n)
 				}
+				if o.out != "" {
+					if w := localGeoJSONWarning(doc); w != "" {
+						fmt.Fprintf(stderr, "warning: %s\n", w)
+					}
+				}
 				return report.WriteJSON(stdout, doc)
 			}
 			printSummary(stdout, doc, time.Since(start))
 			if o.out != "" {
 				fmt.Fprintf(stdout, "results in %s: %s\n", o.out, strings.Join(resultFiles, ", "))
+				if w := localGeoJSONWarning(doc); w != "" {
+					fmt.Fprintf(stdout, "warning: %s\n", w)
+				}
 			}
 			return nil
 		},
 	})
+}
+
+// localGeoJSONWarning is the warning printed with the results when the
+// document has no geodetic origin: route.geojson then holds local metres
+// where RFC 7946 (section 4) has WGS84 longitude and latitude, whose
+// metres a map viewer takes for degrees; empty with an origin.
+// The file says so too (report.GeoJSONLocalNote), but only a reader of
+// its text sees it (found in review: no warning at the "results in"
+// line).
+func localGeoJSONWarning(doc *report.Document) string {
+	if doc.Frame.Origin != nil {
+		return ""
+	}
+	return report.FileGeoJSON + " holds metres east and north of a local origin, not longitude and latitude: the survey had no geodetic positions, " +
+		"so a map viewer takes its metres for degrees and places it wrongly unless told the frame; give the log's origin (" + originHowTo + ") to have it placed"
 }
 
 // progressOn returns a progress-bar writer: stderr when it is a terminal,

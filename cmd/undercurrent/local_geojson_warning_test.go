@@ -1,0 +1,84 @@
+package main
+
+import (
+	"encoding/json"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"undercurrent/ingest"
+	"undercurrent/inverse/simulate"
+)
+
+// TestLocateWarnsGeoJSONWithoutOrigin: RFC 7946 section 4 has every
+// GeoJSON position in WGS84 longitude and latitude. A log of local metres
+// with no geographic origin gives route.geojson local metres, which a map
+// viewer takes for degrees; the file said so only in a top-level member
+// a viewer drops, and the run printed "results in ..." without a word
+// (found in review). Now locate warns with the results, on stdout with the
+// summary and on stderr with --json, and every feature says so in its
+// coordinate_note; the same log with its origin written into it gets no
+// such warning and WGS84 positions.
+func TestLocateWarnsGeoJSONWithoutOrigin(t *testing.T) {
+	const warn = "warning: route.geojson holds metres east and north of a local origin, not longitude and latitude"
+	dir := t.TempDir()
+	local := simulatedLog(t, dir, "line.csv")
+
+	out := filepath.Join(dir, "local")
+	summary := mustCLI(t, "locate", "--group-by", "group", "-o", out, local)
+	if !strings.Contains(summary, warn) {
+		t.Errorf("locate -o of a log without an origin does not warn about route.geojson:\n%s", summary)
+	}
+	code, _, errOut := cli(t, "locate", "--group-by", "group", "--json", "-o", out, local)
+	if code != 0 || !strings.Contains(errOut, warn) {
+		t.Errorf("locate --json -o: exit %d, stderr lacks the warning:\n%s", code, errOut)
+	}
+	var fc struct {
+		Frame    string `json:"coordinate_frame"`
+		Features []struct {
+			Properties map[string]any `json:"properties"`
+		} `json:"features"`
+	}
+	b, err := os.ReadFile(filepath.Join(out, "route.geojson"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := json.Unmarshal(b, &fc); err != nil {
+		t.Fatal(err)
+	}
+	if fc.Frame != "local-enu" || len(fc.Features) == 0 {
+		t.Fatalf("route.geojson: frame %q, %d features", fc.Frame, len(fc.Features))
+	}
+	for i, f := range fc.Features {
+		if n, _ := f.Properties["coordinate_note"].(string); !strings.Contains(n, "not longitude and latitude") {
+			t.Errorf("feature %d (%v) has no coordinate_note: %v", i, f.Properties["feature"], f.Properties["coordinate_note"])
+		}
+	}
+
+	// Control: the same readings with their origin.
+	sc, _ := scenario(t, "single-line.toml")
+	s, err := simulate.Simulate(sc)
+	if err != nil {
+		t.Fatal(err)
+	}
+	s.Origin = &ingest.Geodetic{Lat: 52.4512, Lon: 0.1738, H: 1.5} // the fictional Fenwick Lane
+	geo := filepath.Join(dir, "line-geo.csv")
+	if err := ingest.WriteSamples(geo, s); err != nil {
+		t.Fatal(err)
+	}
+	summary = mustCLI(t, "locate", "--group-by", "group", "-o", filepath.Join(dir, "geo"), geo)
+	if strings.Contains(summary, "route.geojson holds") || !strings.Contains(summary, "results in") {
+		t.Errorf("locate of a log with an origin warns about route.geojson, or wrote nothing:\n%s", summary)
+	}
+	b, err = os.ReadFile(filepath.Join(dir, "geo", "route.geojson"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := json.Unmarshal(b, &fc); err != nil {
+		t.Fatal(err)
+	}
+	if fc.Frame != "wgs84" || strings.Contains(string(b), "coordinate_note") {
+		t.Errorf("with an origin: frame %q, coordinate_note present %v", fc.Frame, strings.Contains(string(b), "coordinate_note"))
+	}
+}
