@@ -101,6 +101,11 @@ type DemodSettings struct {
 	// to window if Freq is off the field's frequency (DemodResult.DriftHz),
 	// and Freq should be the field's (given, or zero to estimate it).
 	EstimateFreq bool
+	// PhaseChecked says the caller checks the frequency against the
+	// phases and takes up a turn itself (cmd/undercurrent fits a phase
+	// ramp per group): Demodulate then gives no warning of the phase
+	// turning across a group (MaxTurnDegrees), only the amplitude band's.
+	PhaseChecked bool
 	// SkipFailedFreq, with EstimateFreq, leaves out a window whose
 	// four-parameter fit fails (its frequency runs off to zero or below,
 	// or its frequency column is degenerate, as where the field runs far
@@ -657,7 +662,7 @@ func DemodulateColumns(c *Columns, set *DemodSettings) (*DemodResult, error) {
 		se := 1.2533 * 1.4826 * median(dev, nil) / math.Sqrt(float64(len(dev)))
 		turn := 360 * math.Abs(res.DriftHz) * span
 		outside := !ds.EstimateFreq && math.Abs(res.DriftHz) > ds.Band
-		turns := turn > MaxTurnDegrees && math.Abs(res.DriftHz) > 3*se
+		turns := !ds.PhaseChecked && turn > MaxTurnDegrees && math.Abs(res.DriftHz) > 3*se
 		switch {
 		case turns:
 			// Enough decimals to show the drift: 0.05 Hz or more in
@@ -678,7 +683,7 @@ func DemodulateColumns(c *Columns, set *DemodSettings) (*DemodResult, error) {
 				ds.Freq+res.DriftHz, ds.Freq, ds.Band, ds.Window))
 		}
 	}
-	if turn := 360 * res.FreqSigma * span; turn > MaxTurnDegrees {
+	if turn := 360 * res.FreqSigma * span; !ds.PhaseChecked && turn > MaxTurnDegrees {
 		res.Warnings = append(res.Warnings, fmt.Sprintf("the estimated frequency's sigma, %.2g Hz, alone turns the phase by up to %.0f° across the longest group (%s%.3g s): its phasors may not be those of one steady field; give the frequency if it is known",
 			res.FreqSigma, turn, groupLabel(spanGroup), span))
 	}

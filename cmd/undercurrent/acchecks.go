@@ -410,7 +410,9 @@ func (pl demodPlan) signalHz(freq float64) string {
 // 50 Hz pair of 0.13 A·m on every traverse; found in review). Over ten
 // cycles the term costs about 0.3% of the phasors' sigma.
 func (pl demodPlan) settings(freq, win float64, h []int) *calibrate.DemodSettings {
-	set := &calibrate.DemodSettings{Freq: freq, Window: win, Harmonics: h, Drift: true}
+	// PhaseChecked: locate checks the frequency and fits phase ramps
+	// itself (checkFrequency, phaseramp.go), with warnings of its own.
+	set := &calibrate.DemodSettings{Freq: freq, Window: win, Harmonics: h, Drift: true, PhaseChecked: true}
 	if len(pl.leftOut) > 0 {
 		set.LeftOut, set.LeftOutWhy, set.LeftOutFix = pl.leftOut, clippedGapWhy, clippedGapFix
 	}
