@@ -61,7 +61,11 @@ func (c *command) flagSet(stderr io.Writer) *pflag.FlagSet {
 	if c.setFlags != nil {
 		c.setFlags(fs)
 	}
-	fs.Usage = func() { c.printHelp(stderr, fs) }
+	// pflag calls Usage only for -h and --help, which runCommand answers
+	// on stdout (help asked for is output, so that "locate --help | less"
+	// works); a usage error prints its message and a pointer to the help
+	// on stderr.
+	fs.Usage = func() {}
 	return fs
 }
 
@@ -221,33 +225,46 @@ func runCommand(ctx context.Context, args []string, stdout, stderr io.Writer) in
 		return 2
 	}
 	fs := c.flagSet(stderr)
+	out := &countWriter{w: stdout}
+	stdout = out
 	if err := fs.Parse(args[1:]); err != nil {
 		if errors.Is(err, pflag.ErrHelp) {
+			c.printHelp(stdout, fs)
 			return 0
 		}
 		fmt.Fprintf(stderr, "undercurrent %s: %v\n", name, err)
 		fmt.Fprintf(stderr, "run \"undercurrent help %s\" for usage\n", name)
+		if wantsJSON(fs, args[1:]) {
+			writeJSONError(stdout, name, "usage", err.Error(), "", err)
+		}
 		return 2
 	}
+	asJSON := wantsJSON(fs, nil)
 	// Temporary files that a run killed outright (kill -9, a power cut)
 	// left beside this run's outputs are removed once stale.
 	removeStaleTemps(outputPaths(name, fs, fs.Args()))
 	if err := checkPipes(name, logPaths(name, fs, fs.Args())); err != nil {
 		fmt.Fprintf(stderr, "undercurrent %s: %v\n", name, err)
+		if asJSON {
+			writeJSONError(stdout, name, "input", err.Error(), "", err)
+		}
 		return 1
 	}
 	if err := c.run(ctx, fs, fs.Args(), stdout, stderr); err != nil {
 		if ctx.Err() != nil && isInterrupt(err) {
 			var ni *notedInterrupt
+			msg := "interrupted"
 			if errors.As(err, &ni) {
-				fmt.Fprintf(stderr, "undercurrent %s: interrupted: %s\n", name, ni.note)
-			} else {
-				fmt.Fprintf(stderr, "undercurrent %s: interrupted\n", name)
+				msg += ": " + ni.note
+			}
+			fmt.Fprintf(stderr, "undercurrent %s: %s\n", name, msg)
+			if asJSON && out.n == 0 {
+				writeJSONError(stdout, name, "interrupted", msg, "", nil)
 			}
 			return interruptStatus(ctx)
 		}
-		msg := readErrorWording(err, inputPaths(name, fs, fs.Args()))
-		fmt.Fprintf(stderr, "undercurrent %s: %s\n", name, cleanMessage(name, fs.Args(), msg))
+		msg := cleanMessage(name, fs.Args(), readErrorWording(err, inputPaths(name, fs, fs.Args())))
+		fmt.Fprintf(stderr, "undercurrent %s: %s\n", name, msg)
 		var we *warnedError
 		if errors.As(err, &we) {
 			// What was noticed before the failure, often its explanation,
@@ -257,7 +274,15 @@ func runCommand(ctx context.Context, args []string, stdout, stderr io.Writer) in
 			}
 		}
 		var ue *usageError
-		if errors.As(err, &ue) {
+		isUsage := errors.As(err, &ue)
+		if asJSON && out.n == 0 {
+			// Nothing was printed on stdout: the failure is said there
+			// as one JSON object (with something printed, another
+			// object would only spoil it).
+			kind, file := errorKind(err, isUsage, outputPaths(name, fs, fs.Args()))
+			writeJSONError(stdout, name, kind, msg, file, err)
+		}
+		if isUsage {
 			fmt.Fprintf(stderr, "run \"undercurrent help %s\" for usage\n", name)
 			return 2
 		}
@@ -311,7 +336,9 @@ func inputPaths(name string, flags *pflag.FlagSet, args []string) map[string]boo
 func outputPaths(name string, flags *pflag.FlagSet, args []string) []string {
 	var out []string
 	for _, n := range []string{"output", "base-log", "truth"} {
-		if f := flags.Lookup(n); f != nil && f.Value.String() != "" {
+		// The flag itself, not one whose name n is normalised to
+		// (locate's --base-log is its input --base).
+		if f := flags.Lookup(n); f != nil && f.Name == n && f.Value.String() != "" {
 			out = append(out, f.Value.String())
 		}
 	}

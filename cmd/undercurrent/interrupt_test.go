@@ -31,7 +31,7 @@ func interrupted(sig os.Signal) context.Context {
 // "interrupted" rather than Go's "context canceled", exits 128 plus the
 // signal's number (130 for SIGINT, 143 for SIGTERM: the shell convention,
 // POSIX "Exit Status for Commands") and leaves no output, not even a
-// staging directory.
+// staging directory; with --json only the error object on stdout.
 func TestInterruptedCommandsWriteNothing(t *testing.T) {
 	dir := t.TempDir()
 	log := simulatedLog(t, dir, "line.csv")
@@ -54,8 +54,14 @@ func TestInterruptedCommandsWriteNothing(t *testing.T) {
 			var out, errOut bytes.Buffer
 			code := run(interrupted(tc.sig), tc.args, &out, &errOut)
 			want := "undercurrent " + tc.args[0] + ": interrupted\n"
-			if code != tc.code || errOut.String() != want || out.Len() != 0 {
-				t.Errorf("exit %d, stdout %q, stderr %q; want exit %d, no output and %q", code, out.String(), errOut.String(), tc.code, want)
+			// With --json, stdout holds the error object alone
+			// (jsonerror.go).
+			wantOut := ""
+			if tc.name == "locate json" {
+				wantOut = `{"error":{"command":"locate","kind":"interrupted","message":"interrupted"}}` + "\n"
+			}
+			if code != tc.code || errOut.String() != want || out.String() != wantOut {
+				t.Errorf("exit %d, stdout %q, stderr %q; want exit %d, stdout %q and %q", code, out.String(), errOut.String(), tc.code, wantOut, want)
 			}
 		})
 	}

@@ -134,6 +134,14 @@ func (o *locateOptions) setFlags(fs *pflag.FlagSet) {
 	fs.IntVar(&o.workers, "workers", 0, "fit `N` groups at a time (default: the number of CPUs)")
 	o.read.add(fs)
 	o.read.addMissing(fs)
+	// --base-log is --base under the name simulate writes the base log
+	// with (the walk-through uses both, one line apart); not in the help.
+	fs.SetNormalizeFunc(func(_ *pflag.FlagSet, name string) pflag.NormalizedName {
+		if name == "base-log" {
+			name = "base"
+		}
+		return pflag.NormalizedName(name)
+	})
 }
 
 // check validates the options and records the ones given.
