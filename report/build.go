@@ -1095,6 +1095,7 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute boo
 		// group fitting much worse than its noise allows stands out.
 		st.Chi2 = res.Chi2 * (res.Sigma / refSigma) * (res.Sigma / refSigma)
 		st.DOF = res.DOF
+		st.SigmaFromResiduals = f.Problem != nil && f.Problem.Sigma == 0
 		g.ReferenceNoise, g.ReferenceChi2 = refSigma, st.Chi2
 	}
 	st.OK = g.OK

@@ -332,6 +332,10 @@ func combine(use []*Placed) Placed {
 	sort.SliceStable(use, func(a, b int) bool { return use[a].Index < use[b].Index })
 	c := *use[0]
 	c.also, c.alsoKeys = nil, nil
+	// The combined sigmas are the repeats' pooled, whose misfits may
+	// differ: they are not taken back to the noise by the first's
+	// (Station.SigmaFromResiduals).
+	c.SigmaFromResiduals = false
 	for _, p := range use[1:] {
 		c.also = append(c.also, label(p))
 		if p.Key != "" {

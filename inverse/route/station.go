@@ -89,6 +89,14 @@ type Station struct {
 	// residuals (Chi2/DOF is then 1 by construction).
 	Chi2 float64
 	DOF  int
+	// SigmaFromResiduals is true when the fit estimated its reading noise
+	// from its own residuals (none was given), so that its sigmas grow
+	// with its misfit, and Chi2 and DOF are taken against a reference
+	// noise measured apart: the sigmas at that noise are then its own
+	// over sqrt(Chi2/DOF). A station beside a phasor step, whose misfit
+	// is the change's own field, is read at that noise where the
+	// transition explains it (phasorstep.go).
+	SigmaFromResiduals bool
 	// OK is false when the fit failed or is unusable; such a station is
 	// placed on the route and reported, but not used for steps or cover.
 	OK bool
