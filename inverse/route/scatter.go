@@ -93,7 +93,7 @@ func modelScatter(u []*Placed, set *Settings) (tau, widen float64) {
 		// The excess may be a step spread over several stations rather
 		// than scatter: then it is taken about the step (stepscatter.go).
 		if tau > 0 {
-			if t1, w1, ok := stepScatter(u, tau/widen, set.stepK()); ok && t1 < tau {
+			if t1, w1, ok := stepScatter(u, tau/widen, set); ok && t1 < tau {
 				return t1, w1
 			}
 		}

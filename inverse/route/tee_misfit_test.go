@@ -122,10 +122,14 @@ func TestTeeNoFallPastBranch(t *testing.T) {
 			}
 		}
 		// T11 reads 1.6 A low: the finding on it says why that is not
-		// taken for current leaving.
+		// taken for current leaving (with the route's scatter taken
+		// about the tee with T07, T08 and T11-T12 at their misfits'
+		// sigmas, 0.03 A where it was 0.16 A, the fall withheld runs
+		// from T10 to T12, both poor fits named).
 		said := false
 		for _, f := range findings(r, KindPoorFit) {
-			said = said || strings.Contains(f.Message, "not reported as current leaving or joining") && strings.Contains(f.Message, "T11 misses the readings")
+			said = said || strings.Contains(f.Message, "not reported as current leaving or joining") &&
+				(strings.Contains(f.Message, "T11 misses the readings") || strings.Contains(f.Message, "T11 and T12 miss the readings"))
 		}
 		if !said && c.name != "seed 14" {
 			t.Errorf("%s: no finding says why the fall into T11 is not reported", c.name)
