@@ -46,6 +46,15 @@ type arrowReader struct {
 	// than 64 bits, its significand bits and largest magnitude read
 	// (notePositionSteps).
 	narrow [nCanon]narrowColumn
+	// rewind starts src again at the first batch (an Arrow IPC file or
+	// Parquet: findOrigin reads ahead and starts again); nil for a
+	// stream, whose batches read ahead are kept in ahead, retained, and
+	// given out first, each released at the next read.
+	rewind  func() error
+	ahead   []arrow.RecordBatch
+	held    arrow.RecordBatch
+	srcDone bool  // the stream's src ended while read ahead
+	srcErr  error // with this error
 }
 
 // narrowColumn is a position column stored as 32- or 16-bit floats: bits
@@ -66,6 +75,7 @@ func (r *arrowReader) Release() {
 		r.cur.Release()
 		r.cur = nil
 	}
+	r.releaseAhead()
 	if r.err == nil && !r.ended {
 		r.err = releasedErr(r.name)
 	}
@@ -124,6 +134,8 @@ func newArrowFileReader(name string, f *os.File, cfg *config) (_ Reader, err err
 		i++
 		return rec, err
 	}
+	r.rewind = func() error { i = 0; return nil }
+	r.findOrigin()
 	r.closer = func() { fr.Close(); f.Close() }
 	return r, nil
 }
@@ -218,6 +230,7 @@ func newArrowStreamReader(name string, rd io.Reader, f *os.File, regular bool, c
 		return nil, nil
 	}
 	r.closer = func() { sr.Release(); f.Close() }
+	r.findOrigin()
 	return r, nil
 }
 
@@ -260,7 +273,21 @@ func newParquetReader(name string, f *os.File, cfg *config) (_ Reader, err error
 		}
 		return nil, err
 	}
+	r.rewind = func() error {
+		rr.Release()
+		next, err := fr.GetRecordReader(context.Background(), nil, nil)
+		if err != nil {
+			return err
+		}
+		rr = next
+		return nil
+	}
 	r.closer = func() { rr.Release(); pf.Close() }
+	if err := r.findOrigin(); err != nil {
+		r.closer = func() { pf.Close() } // rr is released
+		r.Release()
+		return nil, fileErr(name, plainErr{err}, "cannot read the Parquet file")
+	}
 	return r, nil
 }
 
@@ -370,7 +397,100 @@ func (r *arrowReader) groupIndex() int {
 	return -1
 }
 
-func (r *arrowReader) read() (rec arrow.RecordBatch, err error) {
+// findOrigin puts the origin of a latitude/longitude log read with the
+// default origin (or the first pass of WithOriginMean) at its first
+// reading with a finite latitude, longitude and height, as the CSV reader
+// does, before the schema, which carries it, is handed out. The batches
+// are read up to the one that holds that reading: usually the first. An
+// Arrow IPC file or Parquet is then read again from its first batch
+// (rewind), so nothing read ahead is kept; a stream's batches read ahead
+// are kept, retained, for Next. A batch that cannot be read or converted
+// ends the search; Next reports it in its place. When no reading has a
+// position the origin is the stand-in 0 0 0, as in the CSV reader (the
+// log's read says why: a missing value refused, or no position at all).
+// The only error is one starting the file again.
+func (r *arrowReader) findOrigin() error {
+	pl := r.pl
+	if !pl.geodetic || pl.origin != nil {
+		return nil
+	}
+	defer func() {
+		if pl.origin == nil {
+			pl.setOrigin(Geodetic{})
+		}
+	}()
+	var lat, lon, h []float64
+	for pl.origin == nil {
+		rec, err := r.readSrc()
+		if err != nil || rec == nil {
+			if r.rewind == nil {
+				r.srcDone, r.srcErr = true, err
+			}
+			break
+		}
+		if r.rewind == nil {
+			rec.Retain()
+			r.ahead = append(r.ahead, rec)
+		}
+		var e1, e2, e3 error
+		lat, e1 = r.floats(lat[:0], rec.Column(pl.src[cLat]), cLat)
+		lon, e2 = r.floats(lon[:0], rec.Column(pl.src[cLon]), cLon)
+		h = h[:0]
+		if pl.src[cHeight] >= 0 {
+			h, e3 = r.floats(h, rec.Column(pl.src[cHeight]), cHeight)
+		}
+		if e1 != nil || e2 != nil || e3 != nil {
+			break
+		}
+		for i := range lat {
+			o := Geodetic{Lat: lat[i], Lon: lon[i]}
+			if len(h) > 0 {
+				o.H = h[i]
+			}
+			if finite(o.Lat) && finite(o.Lon) && finite(o.H) {
+				pl.setOrigin(o)
+				break
+			}
+		}
+	}
+	if r.rewind != nil {
+		return r.rewind()
+	}
+	return nil
+}
+
+// releaseAhead releases the batches findOrigin kept.
+func (r *arrowReader) releaseAhead() {
+	if r.held != nil {
+		r.held.Release()
+		r.held = nil
+	}
+	for _, rec := range r.ahead {
+		rec.Release()
+	}
+	r.ahead = nil
+}
+
+// read returns the next input batch: first those findOrigin kept, then
+// src's.
+func (r *arrowReader) read() (arrow.RecordBatch, error) {
+	if r.held != nil {
+		r.held.Release()
+		r.held = nil
+	}
+	if len(r.ahead) > 0 {
+		r.held = r.ahead[0]
+		r.ahead[0] = nil
+		r.ahead = r.ahead[1:]
+		return r.held, nil
+	}
+	if r.srcDone {
+		return nil, r.srcErr
+	}
+	return r.readSrc()
+}
+
+func (r *arrowReader) readSrc() (rec arrow.RecordBatch, err error) {
 	defer func() {
 		if p := recover(); p != nil {
 			rec, err = nil, fmt.Errorf("%v", p)

@@ -221,8 +221,8 @@ func unwrapPath(err error) error {
 }
 
 // meanOrigin reads the log once with the first reading as origin and
-// returns the geodetic position of the mean ENU position (nil when the log
-// has no WGS84 positions).
+// returns the geodetic position of the mean ENU position of the readings
+// with one (nil when the log has no WGS84 positions, or none finite).
 func meanOrigin(path string, cfg *config) (*Geodetic, error) {
 	c := *cfg
 	c.originMode = originFirst
@@ -238,17 +238,24 @@ func meanOrigin(path string, cfg *config) (*Geodetic, error) {
 		}
 		return nil, r.Err()
 	}
+	// Readings without a position (missing values, allowed) are left out
+	// of the mean, which they would make NaN.
 	var sum [3]float64
 	var n float64
 	for r.Next() {
 		rec := r.RecordBatch()
+		var xyz [3][]float64
 		for k, name := range []string{ColX, ColY, ColZ} {
-			col := rec.Column(rec.Schema().FieldIndices(name)[0]).(interface{ Float64Values() []float64 })
-			for _, v := range col.Float64Values() {
-				sum[k] += v
+			xyz[k] = rec.Column(rec.Schema().FieldIndices(name)[0]).(interface{ Float64Values() []float64 }).Float64Values()
+		}
+		for i := range xyz[0] {
+			if finite(xyz[0][i]) && finite(xyz[1][i]) && finite(xyz[2][i]) {
+				sum[0] += xyz[0][i]
+				sum[1] += xyz[1][i]
+				sum[2] += xyz[2][i]
+				n++
 			}
 		}
-		n += float64(rec.NumRows())
 	}
 	if err := r.Err(); err != nil {
 		return nil, err

@@ -220,9 +220,10 @@ func WithOrigin(o Geodetic) Option {
 	return func(c *config) { c.origin, c.originMode = o, originFixed }
 }
 
-// WithOriginMean puts the ENU origin at the mean position of the log (at
-// the cost of reading the file twice). The default origin is the first
-// reading.
+// WithOriginMean puts the ENU origin at the mean position of the log's
+// readings that have one (at the cost of reading the file twice). The
+// default origin is the first reading with a finite latitude, longitude
+// and height, in every format.
 func WithOriginMean() Option { return func(c *config) { c.originMode = originMean } }
 
 // WithOriginFirst puts the ENU origin at the log's first reading, the

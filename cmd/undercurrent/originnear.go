@@ -119,7 +119,8 @@ func kmText(km float64) string {
 
 // checkOriginNear compares --origin LAT,LON[,HEIGHT] with the first
 // reading of each log in paths that has latitude and longitude columns
-// (read with opts, the log's header and first data row only): an origin
+// (read with opts up to that reading: a CSV log's header and first data
+// row, an Arrow IPC or Parquet log's first record batch): an origin
 // more than originFarKm away is refused, exit 2, naming the distance and
 // suggesting the first reading as origin, as locate does for several
 // logs about different origins (sameOrigin); one more than originWarnKm
@@ -168,10 +169,10 @@ func originSlip(o, first ingest.Geodetic) string {
 }
 
 // firstReading returns the first reading's latitude, longitude and
-// height of the log at path, read with opts (its header and first data
-// row: ingest places the default origin there); ok is false for a pipe,
-// a log that cannot be opened, and one without latitude and longitude
-// columns.
+// height of the log at path, read with opts up to that reading (ingest
+// places the default origin there, in every format); ok is false for a
+// pipe, a log that cannot be opened, and one without latitude and
+// longitude columns.
 func firstReading(path string, opts []ingest.Option) (ingest.Geodetic, bool) {
 	if fi, err := os.Stat(path); err != nil || !fi.Mode().IsRegular() {
 		return ingest.Geodetic{}, false
