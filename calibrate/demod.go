@@ -1826,7 +1826,7 @@ func (d *demodulator) phaseDrift(ws []Window) {
 // and a constant-amplitude sine fitted to the whole traverse, read that
 // turn as frequency (50.0733 Hz for the demo's 50 Hz, 4 of 4 seeds, found
 // in review). The estimate is instead the combination of the per-window
-// four-parameter fits of the whole log (windowFreq) from the peak, as the
+// four-parameter fits of the whole log (CombineWindowFreqs) from the peak, as the
 // locate command's frequency check does. note is a sentence for the
 // warning on how it was made; sigma is zero when it could not be had.
 func estimateFreq(c *Columns, runs []run, dt float64, ds *DemodSettings) (f, sigma float64, note string, err error) {
@@ -1851,7 +1851,7 @@ func estimateFreq(c *Columns, runs []run, dt float64, ds *DemodSettings) (f, sig
 	// between starts at 50 and 50.0733 Hz, the estimate by 0.0007 Hz), so
 	// the windows are fitted again from the estimate until it stays within
 	// its sigma of where they started.
-	var est windowEstimate
+	var est WindowFreq
 	start := f0
 	for pass := 0; pass < maxFreqPasses; pass++ {
 		set.Freq = start
@@ -1862,28 +1862,28 @@ func estimateFreq(c *Columns, runs []run, dt float64, ds *DemodSettings) (f, sig
 			}
 			return f0, 0, fmt.Sprintf(fallback, "the windows' frequency fits failed: "+strings.TrimPrefix(err.Error(), "calibrate: demodulate: ")), nil
 		}
-		e, ok := windowFreq(res.Windows)
+		e, ok := CombineWindowFreqs(res.Windows, CutAtCommonMedian)
 		if !ok {
 			if pass > 0 {
 				break
 			}
-			return f0, 0, fmt.Sprintf(fallback, fmt.Sprintf("fewer than %d windows have the field %d times its noise", freqMinWindows, freqWindowSNR)), nil
+			return f0, 0, fmt.Sprintf(fallback, fmt.Sprintf("fewer than %d windows have the field %d times its noise", WindowFreqMinWindows, WindowFreqSNR)), nil
 		}
 		est = e
-		if math.Abs(e.freq-start) <= e.sigma {
+		if math.Abs(e.Freq-start) <= e.Sigma {
 			break
 		}
-		start = e.freq
+		start = e.Freq
 	}
 	switch {
-	case est.bothWays:
-		note = fmt.Sprintf("from %d windows walked both ways", est.windows)
-	case est.still:
-		note = fmt.Sprintf("from %d windows", est.windows)
+	case est.BothWays:
+		note = fmt.Sprintf("from %d windows walked both ways", est.Windows)
+	case est.Still:
+		note = fmt.Sprintf("from %d windows", est.Windows)
 	default:
-		note = fmt.Sprintf("from %d windows all walked one way, where the walk over conductors of different phase may move it by thousandths of a hertz beyond its sigma: give the frequency if it is known", est.windows)
+		note = fmt.Sprintf("from %d windows all walked one way, where the walk over conductors of different phase may move it by thousandths of a hertz beyond its sigma: give the frequency if it is known", est.Windows)
 	}
-	return est.freq, est.sigma, note, nil
+	return est.Freq, est.Sigma, note, nil
 }
 
 // plusMinus formats x ± sigma with sigma to two significant digits and x
@@ -1893,142 +1893,10 @@ func plusMinus(x, sigma float64) string {
 	return fmt.Sprintf("%.*f ± %.*f", d, x, d, sigma)
 }
 
-// freqWindowSNR is the least |B|/Sigma on a window's strongest axis for its
-// frequency to count in windowFreq, and freqMinWindows the fewest such
-// windows (the locate command's frequency check uses the same).
 const (
-	freqWindowSNR  = 20
-	freqMinWindows = 3
 	// maxFreqPasses bounds estimateFreq's fits of the windows.
 	maxFreqPasses = 4
 )
-
-// windowEstimate is windowFreq's combination of the windows' frequencies.
-type windowEstimate struct {
-	freq, sigma float64
-	windows     int
-	// bothWays: windows walked both ways were combined; still: every
-	// window used stood still (or the log has no positions).
-	bothWays, still bool
-}
-
-// windowFreq combines the frequencies of windows fitted with EstimateFreq,
-// from those with a clear signal (freqWindowSNR). A window's phase also
-// turns as the sensor walks where conductors of different phase overlap,
-// the same way on every traverse walked the same way and the other way on
-// those walked back, so the windows are sorted by the sign of their travel
-// along the main walking direction (the principal axis of their horizontal
-// travels): with windows walked both ways the estimate is the mean of the
-// two ways' means, which cancels the walk's share; otherwise the mean of
-// all. ok is false with too few windows.
-func windowFreq(ws []Window) (windowEstimate, bool) {
-	var sxx, sxy, syy float64
-	for _, w := range ws {
-		x, y := w.Travel[0], w.Travel[1]
-		sxx += x * x
-		sxy += x * y
-		syy += y * y
-	}
-	th := 0.5 * math.Atan2(2*sxy, sxx-syy)
-	dx, dy := math.Cos(th), math.Sin(th)
-	var fs, wt [3][]float64 // still, one way, the other
-	var sg [3][]int         // the stretch walked one way each window is in
-	var all, allW []float64
-	var allS []int
-	stretch, prevC, prevG := 0, -1, ""
-	for _, w := range ws {
-		if !(w.FreqSigma > 0) || math.IsNaN(w.Freq) {
-			continue
-		}
-		snr := 0.0
-		for k := 0; k < 3; k++ {
-			if w.Sigma[k] > 0 {
-				snr = math.Max(snr, cmplx.Abs(w.B[k])/w.Sigma[k])
-			}
-		}
-		if snr < freqWindowSNR {
-			continue
-		}
-		c := 0
-		if math.Hypot(w.Travel[0], w.Travel[1]) >= 1e-3 {
-			c = 1
-			if w.Travel[0]*dx+w.Travel[1]*dy < 0 {
-				c = 2
-			}
-		}
-		if c != prevC || w.Group != prevG {
-			stretch++
-			prevC, prevG = c, w.Group
-		}
-		wgt := 1 / (w.FreqSigma * w.FreqSigma)
-		fs[c] = append(fs[c], w.Freq)
-		wt[c] = append(wt[c], wgt)
-		sg[c] = append(sg[c], stretch)
-		all = append(all, w.Freq)
-		allW = append(allW, wgt)
-		allS = append(allS, stretch)
-	}
-	// One centre for the cut of both ways: the median of all.
-	med := median(all, nil)
-	f1, s1, n1, ok1 := freqMean(fs[1], wt[1], sg[1], med)
-	f2, s2, n2, ok2 := freqMean(fs[2], wt[2], sg[2], med)
-	if ok1 && ok2 {
-		return windowEstimate{freq: (f1 + f2) / 2, sigma: math.Hypot(s1, s2) / 2, windows: n1 + n2, bothWays: true}, true
-	}
-	if len(fs[1])+len(fs[2]) == 0 {
-		f, s, n, ok := freqMean(fs[0], wt[0], sg[0], med)
-		return windowEstimate{freq: f, sigma: s, windows: n, still: true}, ok
-	}
-	f, s, n, ok := freqMean(all, allW, allS, med)
-	return windowEstimate{freq: f, sigma: s, windows: n}, ok
-}
-
-// freqMean is the inverse-variance mean of the frequencies fs with weights
-// ws (1/sigma²), seg naming the stretch walked one way each belongs to. A
-// window beyond 10 of its own sigmas from the median (a fit drawn to
-// another tone, or far off by the walk's turn of the phase) is left out.
-// The sigma is the noise's, sum(ws)^(-1/2), widened by the square root of
-// the larger reduced chi-square of the windows about the mean and, with
-// two stretches or more, of the stretches' means (traverses walked the
-// same way share the walk's share, so what they disagree by beyond their
-// noise is the frequency wandering or the traverses differing).
-func freqMean(fs, ws []float64, seg []int, med float64) (mean, sigma float64, n int, ok bool) {
-	if len(fs) < freqMinWindows {
-		return 0, 0, 0, false
-	}
-	keep := func(i int) bool { return math.Abs(fs[i]-med)*math.Sqrt(ws[i]) <= 10 }
-	var sw, swf float64
-	segW, segWF := map[int]float64{}, map[int]float64{}
-	for i, f := range fs {
-		if keep(i) {
-			sw += ws[i]
-			swf += ws[i] * f
-			segW[seg[i]] += ws[i]
-			segWF[seg[i]] += ws[i] * f
-			n++
-		}
-	}
-	if n < freqMinWindows {
-		return 0, 0, 0, false
-	}
-	mean = swf / sw
-	var c2 float64
-	for i, f := range fs {
-		if keep(i) {
-			c2 += (f - mean) * (f - mean) * ws[i]
-		}
-	}
-	red := c2 / float64(n-1)
-	if len(segW) >= 2 {
-		var cs float64
-		for k, w := range segW {
-			m := segWF[k] / w
-			cs += (m - mean) * (m - mean) * w
-		}
-		red = math.Max(red, cs/float64(len(segW)-1))
-	}
-	return mean, math.Sqrt(math.Max(1, red) / sw), n, true
-}
 
 // spectralPeak finds the dominant frequency above minFreq: the peak of the
 // summed power spectrum of the three axes over the longest run (up to

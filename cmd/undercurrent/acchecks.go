@@ -65,9 +65,9 @@ const (
 	mainsWindowStep = 0.1
 	// freqCheckSNR is the least |B|/sigma on a window's strongest axis for
 	// its frequency estimate to count.
-	freqCheckSNR = 20
+	freqCheckSNR = calibrate.WindowFreqSNR
 	// freqCheckMinWindows is the fewest such windows for a check.
-	freqCheckMinWindows = 3
+	freqCheckMinWindows = calibrate.WindowFreqMinWindows
 	// freqCheckSigmas is how many of its sigmas the estimate must be off
 	// --freq before locate acts on it.
 	freqCheckSigmas = 5
@@ -140,160 +140,31 @@ type freqEstimate struct {
 	// (or standing still) cancels it.
 	trusted bool
 	// spread is the windows' scatter about the mean beyond their noise,
-	// Hz (freqMean). A grid's frequency is the same in every window, so on
+	// Hz (calibrate.WindowFreq.Spread). A grid's frequency is the same in every window, so on
 	// a log walked one way the spread is the walk's share changing along
 	// the traverses, and the share that is left in the mean is of its
 	// order (see freqWalkSpreads).
 	spread float64
 }
 
-// freqMean is the inverse-variance mean of the per-window frequencies fs
-// with weights ws (1/sigma²), seg naming the stretch of windows walked one
-// way (a traverse) each belongs to.
-//
-// A window whose fit wandered to another tone would pull the mean, so a
-// window is dropped first when its frequency lies beyond 10 of its own
-// sigmas from the median. Where conductors of different phase overlap,
-// the phase of the field changes along a traverse, and a walking sensor's
-// windows seem to run off the frequency by hundredths to tenths of a
-// hertz, hundreds of their own sigmas, with the sign of the walking
+// estimateWindowFreq combines the per-window frequencies of a
+// demodulation with EstimateFreq in windows of window seconds
+// (calibrate.CombineWindowFreqs), each way's cut of windows far off
+// centred on that way's own median. Where conductors of different phase
+// overlap, the phase of the field changes along a traverse, and a walking
+// sensor's windows seem to run off the frequency by hundredths to tenths
+// of a hertz, hundreds of their own sigmas, with the sign of the walking
 // direction, so that the cut may keep a biased few (9 of 160 windows of a
 // three-phase circuit at 50.05 Hz, 0.004 Hz off; 46 to 52, 0.003 Hz off,
 // since the frequency-estimating fit takes the change of amplitude apart
-// from the phase); the groups demodulated
-// at such an estimate then search for a phase ramp with one line fewer as
-// well (fitRamp), which takes up the rest.
-//
-// The sigma is the noise's, sum(ws)^(-1/2), widened by the square root of
-// a reduced chi-square: that of the stretches' own means about the mean
-// when there are two or more (traverses walked the same way see the same
-// walk's share, so what they disagree by beyond their noise is the grid
-// wandering or the traverses differing), else that of the windows (the
-// walk's share then counts in full). ok is false with fewer than
-// freqCheckMinWindows windows.
-func freqMean(fs, ws []float64, seg []int) (mean, sigma float64, n int, spread float64, ok bool) {
-	if len(fs) < freqCheckMinWindows {
-		return 0, 0, 0, 0, false
-	}
-	sorted := append([]float64(nil), fs...)
-	sort.Float64s(sorted)
-	med := sorted[len(sorted)/2]
-	// A window is kept within 10 of its own sigmas of the median. Keeping
-	// also those within a quarter of 1/window of it (so that the walk's
-	// turn of the phase over conductors of different phase, which moves
-	// windows by tenths of a hertz one way and the other, averaged out)
-	// let the walk's share that the two ways do not cancel through: a
-	// false "frequency off" by 0.0018 Hz, six of its sigmas, on a
-	// ten-minute walk over two cables 115 degrees apart at exactly 50 Hz
-	// (found in review). The ramps fitted after demodulating at an
-	// estimate take up what the cut leaves (fitRamp).
-	keep := func(i int) bool {
-		return math.Abs(fs[i]-med)*math.Sqrt(ws[i]) <= 10
-	}
-	var sw, swf float64
-	segW, segWF := map[int]float64{}, map[int]float64{}
-	for i, f := range fs {
-		if keep(i) {
-			sw += ws[i]
-			swf += ws[i] * f
-			segW[seg[i]] += ws[i]
-			segWF[seg[i]] += ws[i] * f
-			n++
-		}
-	}
-	if n < freqCheckMinWindows {
-		return 0, 0, 0, 0, false
-	}
-	mean = swf / sw
-	// The windows' reduced chi-square about the mean, and, with two or
-	// more stretches, the stretches' means': the larger widens the sigma.
-	// (The stretches' alone, where the cut keeps a biased few windows in
-	// few stretches, put a three-phase estimate at 50.0531 ± 0.0002 Hz
-	// for 50.05.)
-	var c2 float64
-	for i, f := range fs {
-		if keep(i) {
-			c2 += (f - mean) * (f - mean) * ws[i]
-		}
-	}
-	red := c2 / float64(n-1)
-	// The spread: the windows' weighted variance about the mean less
-	// their noise's (n/sw, the weighted mean of their variances).
-	spread = math.Sqrt(math.Max(0, (c2-float64(n))/sw))
-	if len(segW) >= 2 {
-		var cs float64
-		for k, w := range segW {
-			m := segWF[k] / w
-			cs += (m - mean) * (m - mean) * w
-		}
-		red = math.Max(red, cs/float64(len(segW)-1))
-	}
-	return mean, math.Sqrt(math.Max(1, red) / sw), n, spread, true
-}
-
-// estimateWindowFreq combines the per-window frequencies of a
-// demodulation with EstimateFreq in windows of window seconds, from the
-// windows with a clear signal (freqCheckSNR on the strongest axis).
-// Windows are sorted by the way the sensor moved (the sign of their travel
-// along the survey's main walking direction, or standing still): with
-// windows walked both ways the estimate is the mean of the two ways'
-// (cancelling the walking's share, see freqEstimate.trusted); with the
-// sensor still, theirs; else the mean of all, not trusted (see freqMean).
+// from the phase); the groups demodulated at such an estimate then search
+// for a phase ramp with one line fewer as well (fitRamp), which takes up
+// the rest. The estimate is trusted when it is the mean of windows walked
+// both ways (cancelling the walking's share) or of windows standing still.
 // ok is false when too few windows qualify.
 func estimateWindowFreq(ws []calibrate.Window, window float64) (est freqEstimate, ok bool) {
-	// The main walking direction: the principal axis of the windows'
-	// horizontal travels.
-	var sxx, sxy, syy float64
-	for _, w := range ws {
-		x, y := w.Travel[0], w.Travel[1]
-		sxx += x * x
-		sxy += x * y
-		syy += y * y
-	}
-	th := 0.5 * math.Atan2(2*sxy, sxx-syy)
-	dx, dy := math.Cos(th), math.Sin(th)
-	var fs, wt [3][]float64 // still, one way, the other
-	var sg [3][]int         // the stretch walked one way each window is in
-	var all, allW []float64
-	var allS []int
-	stretch, prevC, prevG := 0, -1, ""
-	for _, w := range ws {
-		if !(w.FreqSigma > 0) || math.IsNaN(w.Freq) {
-			continue
-		}
-		if windowSNR(w) < freqCheckSNR {
-			continue
-		}
-		wgt := 1 / (w.FreqSigma * w.FreqSigma)
-		c := 0
-		if a := w.Travel[0]*dx + w.Travel[1]*dy; math.Hypot(w.Travel[0], w.Travel[1]) >= stillTravel {
-			c = 1
-			if a < 0 {
-				c = 2
-			}
-		}
-		if c != prevC || w.Group != prevG {
-			stretch++
-			prevC, prevG = c, w.Group
-		}
-		fs[c] = append(fs[c], w.Freq)
-		wt[c] = append(wt[c], wgt)
-		sg[c] = append(sg[c], stretch)
-		all = append(all, w.Freq)
-		allW = append(allW, wgt)
-		allS = append(allS, stretch)
-	}
-	f1, s1, n1, _, ok1 := freqMean(fs[1], wt[1], sg[1])
-	f2, s2, n2, _, ok2 := freqMean(fs[2], wt[2], sg[2])
-	if ok1 && ok2 {
-		return freqEstimate{freq: (f1 + f2) / 2, sigma: math.Hypot(s1, s2) / 2, windows: n1 + n2, trusted: true}, true
-	}
-	if len(fs[1])+len(fs[2]) == 0 {
-		f, sgm, n, sp, ok := freqMean(fs[0], wt[0], sg[0])
-		return freqEstimate{freq: f, sigma: sgm, windows: n, trusted: true, spread: sp}, ok
-	}
-	f, sgm, n, sp, ok := freqMean(all, allW, allS)
-	return freqEstimate{freq: f, sigma: sgm, windows: n, spread: sp}, ok
+	e, ok := calibrate.CombineWindowFreqs(ws, calibrate.CutAtOwnMedian)
+	return freqEstimate{freq: e.Freq, sigma: e.Sigma, windows: e.Windows, trusted: e.BothWays || e.Still, spread: e.Spread}, ok
 }
 
 // windowSNR is a window's clearest signal: the largest |B|/sigma over its
@@ -312,7 +183,7 @@ func windowSNR(w calibrate.Window) float64 {
 // windows ws (fitted with the frequency) and that the results assume
 // freq: fewer than freqCheckMinWindows windows with a clear signal
 // (freqCheckSNR), or enough of them whose frequencies disagree, so that
-// fewer than freqCheckMinWindows lie near their median (freqMean's cut). Before, the first reason was given for both: a
+// fewer than freqCheckMinWindows lie near their median (the cut in calibrate.CombineWindowFreqs). Before, the first reason was given for both: a
 // three-phase circuit whose 160 windows all had a signal hundreds of
 // times their noise was said to have too few clear windows (found in
 // review).
@@ -328,10 +199,6 @@ func uncheckedWarning(ws []calibrate.Window, freq float64) string {
 	}
 	return fmt.Sprintf("the AC frequency could not be checked: %d of %d windows have a clear signal, but their fitted frequencies disagree far beyond their own sigmas, and fewer than %d lie within 10 of their sigmas of the median (as where conductors of different phase overlap and the phase turns as the sensor walks, or where the frequency hops); the results assume the field runs at exactly %g Hz", clear, len(ws), freqCheckMinWindows, freq)
 }
-
-// stillTravel is the horizontal half-travel, m, below which a window is
-// taken as standing still.
-const stillTravel = 1e-3
 
 func abs(z complex128) float64 { return math.Hypot(real(z), imag(z)) }
 

@@ -9,7 +9,7 @@ import (
 
 // TestFrequencyUncheckedSaysWhy: the frequency check drops windows whose
 // fitted frequencies lie far from their median, both in their own sigmas
-// and by over a quarter of the window's frequency resolution (freqMean),
+// and by over a quarter of the window's frequency resolution (calibrate.CombineWindowFreqs),
 // and when fewer than freqCheckMinWindows are left it cannot check the
 // frequency. That is not the same as too few windows with a clear signal,
 // which the warning said whatever the cause (a three-phase circuit whose

@@ -161,11 +161,11 @@ func estimatedFreq(warnings []string) (f, sigma float64, n int, ok bool) {
 // the three conductors and no more, with their currents, depths and phase
 // differences, and no current step is reported. (The estimate may come
 // from some of the windows: the walk over conductors of different phase
-// moves many beyond the cut, see freqMean; the groups' ramps take up the
+// moves many beyond the cut, see estimateWindowFreq; the groups' ramps take up the
 // estimate's error.)
 //
 // The walk's share: the phase of this circuit's field changes along a
-// traverse, and the windows kept by freqMean's cut in the two walking
+// traverse, and the windows kept by the cut (calibrate.CombineWindowFreqs) in the two walking
 // directions lie at different places, so the directions' mean keeps part
 // of it, which the estimate's sigma (the noise's) does not hold. Since
 // the frequency-estimating fit takes the change of the field's amplitude
@@ -173,7 +173,7 @@ func estimatedFreq(warnings []string) (f, sigma float64, n int, ok bool) {
 // (13 and 33 of 80 on seed 1, against 5 and none before, when the
 // estimate pooled all windows and came out at 50.0501 ± 0.0004 Hz), and
 // the estimate reads 50.0472 ± 0.0004 and 50.0469 ± 0.0004 Hz on the two
-// seeds, 7 of its sigmas low: within the 0.004 Hz freqMean's doc gives
+// seeds, 7 of its sigmas low: within the 0.004 Hz estimateWindowFreq's doc gives
 // for the walk's share on this circuit.
 func TestOffNominalThreePhase(t *testing.T) {
 	if testing.Short() {
