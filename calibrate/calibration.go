@@ -82,8 +82,12 @@ func FileInput(role, path string, samples int) (Input, error) {
 	return Input{Role: role, File: path, SHA256: hex.EncodeToString(h.Sum(nil)), Samples: samples}, nil
 }
 
-// FromEllipsoid makes a Calibration from an ellipsoid fit.
+// FromEllipsoid makes a Calibration from an ellipsoid fit; nil for a nil
+// res.
 func FromEllipsoid(res *EllipsoidResult, inputs ...Input) *Calibration {
+	if res == nil {
+		return nil
+	}
 	before, after := res.Before, res.After
 	c := &Calibration{
 		Version:   Version,
@@ -103,8 +107,11 @@ func FromEllipsoid(res *EllipsoidResult, inputs ...Input) *Calibration {
 }
 
 // FromOffset makes an offset-only Calibration (method MethodFlip or
-// MethodZero) with an identity matrix.
+// MethodZero) with an identity matrix; nil for a nil res.
 func FromOffset(method string, res *OffsetResult, inputs ...Input) *Calibration {
+	if res == nil {
+		return nil
+	}
 	sigma := res.Sigma
 	c := &Calibration{
 		Version:     Version,
@@ -242,8 +249,11 @@ func hasAxis(list []string, s string) bool {
 }
 
 // Validate checks that c is usable: a known version and a finite,
-// invertible correction.
+// invertible correction. A nil c is an error.
 func (c *Calibration) Validate() error {
+	if c == nil {
+		return errors.New("no calibration (nil)")
+	}
 	if c.Version != Version {
 		return fmt.Errorf("version %d is not supported (this build reads version %d)", c.Version, Version)
 	}
@@ -280,7 +290,8 @@ func (c *Calibration) Validate() error {
 	return nil
 }
 
-// Save writes c to path as indented JSON, atomically.
+// Save writes c to path as indented JSON, atomically. A nil c is an error,
+// and nothing is written.
 func (c *Calibration) Save(path string) error {
 	if err := c.Validate(); err != nil {
 		return fmt.Errorf("calibrate: %s: %w", path, err)

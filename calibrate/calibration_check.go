@@ -38,8 +38,12 @@ var sensorKeys = []string{"sensor", "sensor_id", "serial"}
 // "sensor", "sensor_id" or "serial": in a CSV file the comment line
 // "# undercurrent.meta.sensor: MAG-0412", in an Arrow or Parquet file the
 // schema metadata key "undercurrent.meta.sensor"), or "" when it names
-// none. The calibrate command records it in Calibration.Sensor.
+// none (and for a nil s). The calibrate command records it in
+// Calibration.Sensor.
 func SensorName(s *ingest.Samples) string {
+	if s == nil {
+		return ""
+	}
 	for _, k := range sensorKeys {
 		if v := strings.TrimSpace(s.Meta[k]); v != "" {
 			return v
@@ -60,8 +64,12 @@ func SensorName(s *ingest.Samples) string {
 //     within MaxReferenceMismatch of it. The median, not the mean, so that
 //     readings near a conductor or a buried steel object do not move it.
 //
-// Rows with a non-finite field component are left out.
+// Rows with a non-finite field component are left out. A nil c or s has
+// nothing to compare: no warnings.
 func (c *Calibration) Check(s *ingest.Samples) []string {
+	if c == nil || s == nil {
+		return nil
+	}
 	var warns []string
 	if got := SensorName(s); c.Sensor != "" && got != "" && got != c.Sensor {
 		warns = append(warns, fmt.Sprintf("%s was taken by sensor %q, but the calibration was made for sensor %q: a calibration belongs to one sensor", source(s), got, c.Sensor))

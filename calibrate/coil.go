@@ -200,8 +200,11 @@ type CoilResponse struct {
 // Sensitivity interpolates the table at freq Hz: log |H| linearly in log f
 // (exact for the ideal coil's |H| ∝ f, and for any power law between two
 // rows) and the phase linearly in log f. A frequency outside the table is
-// an error: the response is not extrapolated.
+// an error: the response is not extrapolated; so is a nil r.
 func (r *CoilResponse) Sensitivity(freq float64) (complex128, error) {
+	if r == nil {
+		return 0, errors.New("calibrate: coil response: none (nil)")
+	}
 	n := len(r.Freq)
 	if n < 2 || len(r.Sens) != n || len(r.Phase) != n {
 		return 0, fmt.Errorf("calibrate: coil response: %d frequencies, %d sensitivities and %d phases: want at least two rows of each", n, len(r.Sens), len(r.Phase))
@@ -280,8 +283,11 @@ var sensitivityColumns = map[string]float64{
 // commas (the header line decides); with semicolons a decimal comma is
 // read too ("3,14e-5"). Phases are unwrapped (each moved by whole turns to
 // within 180° of the one before), so a table may wrap them at ±180°. name
-// is used in messages.
+// is used in messages. A nil rd is an error.
 func ReadCoilResponse(rd io.Reader, name string) (*CoilResponse, error) {
+	if rd == nil {
+		return nil, fmt.Errorf("calibrate: coil response %s: no reader (nil)", name)
+	}
 	br := bufio.NewReader(rd)
 	// A byte order mark (U+FEFF in UTF-8) before the header is no part of
 	// its first name.
@@ -417,8 +423,12 @@ func LoadCoilResponse(path string) (*CoilResponse, error) {
 // Sigma in volts) to field in nT in place, each at its own frequency, with
 // B = V / H and Sigma = Sigma_V / |H| (H = s.Sensitivity(freq), V per T).
 // A window the sensitivity rejects (a frequency outside a table) leaves the
-// windows unchanged. With the ideal Coil it agrees with CoilWindows.
+// windows unchanged. With the ideal Coil it agrees with CoilWindows. A nil
+// s is an error.
 func SensitivityWindows(ws []Window, s CoilSensitivity) error {
+	if s == nil {
+		return errors.New("calibrate: coil: no sensitivity (nil)")
+	}
 	h := make([]complex128, len(ws))
 	for i, w := range ws {
 		var err error

@@ -465,6 +465,9 @@ func (c *Columns) sampleInterval(runs []run) float64 {
 // Windows whose times sit on a uniform grid share one precomputed basis;
 // others get their own.
 func DemodulateColumns(c *Columns, set *DemodSettings) (*DemodResult, error) {
+	if c == nil {
+		return nil, errors.New("calibrate: demodulate: no columns (nil)")
+	}
 	var ds DemodSettings
 	if set != nil {
 		ds = *set

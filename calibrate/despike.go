@@ -82,8 +82,8 @@ type DespikeReport struct {
 // stays within the columns (moved inwards at their ends; readings of a
 // run too short to judge, under about ten, are left alone); callers split
 // at group boundaries.
-// perCol counts spikes per column. All columns must have the same length
-// (it panics otherwise, a programming mistake).
+// perCol counts spikes per column. Columns of different lengths are an
+// error.
 func FindSpikes(cols [][]float64, set *DespikeSettings) (spike []bool, perCol []int, nonFinite int, err error) {
 	ds, err := set.withDefaults()
 	if err != nil {
@@ -95,10 +95,12 @@ func FindSpikes(cols [][]float64, set *DespikeSettings) (spike []bool, perCol []
 	n := len(cols[0])
 	spike = make([]bool, n)
 	perCol = make([]int, len(cols))
-	for _, c := range cols {
+	for k, c := range cols {
 		if len(c) != n {
-			panic("calibrate: FindSpikes: columns of different lengths")
+			return nil, nil, 0, fmt.Errorf("calibrate: FindSpikes: column %d has %d values, column 0 has %d", k, len(c), n)
 		}
+	}
+	for _, c := range cols {
 		for i, v := range c {
 			if (math.IsNaN(v) || math.IsInf(v, 0)) && !spike[i] {
 				spike[i] = true

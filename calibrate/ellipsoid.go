@@ -685,6 +685,9 @@ type clipRun struct {
 // candidate as a rail only when its readings lie inside the ellipsoid.
 func findClipped(readings [][3]float64) []clipRun {
 	var out []clipRun
+	if len(readings) == 0 {
+		return nil
+	}
 	vals := make([]float64, len(readings))
 	for k := 0; k < 3; k++ {
 		for i, r := range readings {
@@ -741,7 +744,7 @@ type ClipRun struct {
 // FindClipped returns the candidate rails of the readings by the test
 // FitEllipsoid uses (findClipped): an axis's extreme value repeated at
 // least three times and at least four times as often as the distinct
-// values within 5% of the axis's range below it.
+// values within 5% of the axis's range below it. No readings have none.
 func FindClipped(readings [][3]float64) []ClipRun {
 	var out []ClipRun
 	for _, c := range findClipped(readings) {

@@ -40,7 +40,12 @@ import (
 // as written, are kept with no word (simulated: readings 0-0.95 ms after
 // each 2 ms tick had been warned of and their currents raised 0.4%, 16
 // sigma, found in review).
+//
+// A nil s has no stamps to scatter: nil and "".
 func StampJitter(s *ingest.Samples, freq float64) (*ingest.TimeJitter, string) {
+	if s == nil {
+		return nil, ""
+	}
 	t, tj := ingest.RetimeJittered(s.Time, s.Group)
 	if t == nil {
 		return nil, ""

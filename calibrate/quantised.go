@@ -40,8 +40,12 @@ func quantumWarning(tq *ingest.TimeQuantum, freq float64) string {
 // untouched) and the warning to give, for demodulation at freq Hz. It
 // returns s itself with a warning when they look quantised but cannot be
 // rebuilt, and s itself and "" when they are not quantised (see
-// RetimeJittered for stamps scattered about a steady clock).
+// RetimeJittered for stamps scattered about a steady clock). A nil s gives
+// nil and "".
 func RetimeSamples(s *ingest.Samples, freq float64) (*ingest.Samples, string) {
+	if s == nil {
+		return nil, ""
+	}
 	t, tq := ingest.RetimeQuantised(s.Time, s.Group)
 	if tq == nil {
 		return s, ""

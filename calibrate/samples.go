@@ -55,7 +55,8 @@ func Readings(s *ingest.Samples) ([][3]float64, error) {
 
 // Apply corrects s.Bx, s.By, s.Bz in place: B = Matrix (raw - Offset). The
 // calibration belongs to the sensor frame, so apply it before Tilt (or to
-// logs whose sensor was held aligned with east-north-up).
+// logs whose sensor was held aligned with east-north-up). A nil c or s is
+// an error.
 func (c *Calibration) Apply(s *ingest.Samples) error {
 	if err := c.Validate(); err != nil {
 		return fmt.Errorf("calibrate: %w", err)

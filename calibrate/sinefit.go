@@ -109,10 +109,10 @@ type SineSettings struct {
 
 // FitSine fits the three-parameter model (plus optional harmonics, drift
 // and slope) at the known frequency freq (Hz) to y sampled at times t (s),
-// with the basis origin at t[0]. It panics if len(t) != len(y).
+// with the basis origin at t[0]. t and y of different lengths are an error.
 func FitSine(t, y []float64, freq float64, set *SineSettings) (SineFit, error) {
 	if len(t) != len(y) {
-		panic("calibrate: FitSine: t and y differ in length")
+		return SineFit{}, fmt.Errorf("calibrate: FitSine: %d times and %d values", len(t), len(y))
 	}
 	var ss SineSettings
 	if set != nil {
@@ -225,7 +225,7 @@ func lstsq(X *mat.Dense, y []float64) ([]float64, float64, error) {
 // update. The basis origin is t[0].
 func FitSine4(t, y []float64, freq0 float64, set *SineSettings) (SineFit, error) {
 	if len(t) != len(y) {
-		panic("calibrate: FitSine4: t and y differ in length")
+		return SineFit{}, fmt.Errorf("calibrate: FitSine4: %d times and %d values", len(t), len(y))
 	}
 	var ss SineSettings
 	if set != nil {

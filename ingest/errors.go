@@ -68,10 +68,15 @@ func batchRow(batch, row int, fileRow int64) string {
 }
 
 // ErrReleased is the cause (Error.Err) of a Reader's Err after Release
-// was called before the reader reached the end of its input: the rows read
-// are not the whole log. Before, Err was nil then, the sign of a clean end,
-// and a read cancelled by Release passed for the whole file.
-var ErrReleased = errors.New("reader released before the end of the input: the rows read are not the whole log")
+// was called before Next had returned false at the end of the input: the
+// rows read may not be the whole log. Before, Err was nil then, the sign of
+// a clean end, and a read cancelled by Release passed for the whole file.
+// A file's reader released after its last batch but before Next said so
+// (a log of one batch released after the first Next) cannot tell whether
+// more rows followed without reading on, and gives it too (the reader of
+// NewSamplesReader can, and gives nil): call Next until it returns false
+// to know that every row was read.
+var ErrReleased = errors.New("reader released before Next reported the end of the input: the rows read may not be the whole log (call Next until it returns false to read it all)")
 
 // releasedErr is the error of a reader of file released before its end.
 func releasedErr(file string) *Error {

@@ -27,8 +27,9 @@ type Reader interface {
 	// or Release; Retain it to keep it longer.
 	RecordBatch() arrow.RecordBatch
 	// Err is the error that stopped Next, or nil at a clean end. After
-	// Release before the end of the input it is an *Error whose cause is
-	// ErrReleased: the rows read are not the whole log.
+	// Release before Next returned false at the end of the input it is an
+	// *Error whose cause is ErrReleased: the rows read may not be the whole
+	// log.
 	Err() error
 	// Release stops any background work and frees the reader's memory;
 	// Next returns false after it.

@@ -101,7 +101,9 @@ func newConfig(opts []Option) *config {
 		mem:        memory.DefaultAllocator,
 	}
 	for _, o := range opts {
-		o(c)
+		if o != nil { // a nil Option changes nothing
+			o(c)
+		}
 	}
 	if c.workers < 1 {
 		c.workers = 1
@@ -359,8 +361,10 @@ func WithDecimalComma(on bool) Option {
 	}
 }
 
-// WithBatchSize sets the number of rows per record batch for readers that
-// choose it (IAGA-2002, Samples); CSV batches follow its parse chunks.
+// WithBatchSize sets the number of rows per record batch (default 65536)
+// of the readers that choose it: IAGA-2002 and Parquet. CSV batches follow
+// its parse chunks, and an Arrow IPC file or stream keeps the batches it
+// was written in (NewSamplesReader takes its batch size as an argument).
 func WithBatchSize(rows int) Option {
 	return func(c *config) {
 		if rows > 0 {

@@ -1,6 +1,7 @@
 package ingest
 
 import (
+	"errors"
 	"fmt"
 	"math"
 	"strconv"
@@ -56,8 +57,13 @@ type Samples struct {
 	NaiveTime, TimeSaidUTC bool
 }
 
-// Len returns the number of rows.
-func (s *Samples) Len() int { return len(s.Time) }
+// Len returns the number of rows (0 for a nil s).
+func (s *Samples) Len() int {
+	if s == nil {
+		return 0
+	}
+	return len(s.Time)
+}
 
 // column returns a pointer to the slice of canonical column c.
 func (s *Samples) column(c int) *[]float64 {
@@ -115,8 +121,11 @@ func ReadSamples(path string, opts ...Option) (*Samples, error) {
 
 // Collect reads the rest of r into memory. It does not release r. A log
 // with no data rows is an error. Rows with a missing (NaN) field value are
-// counted in Meta["missing_rows"].
+// counted in Meta["missing_rows"]. A nil r is an error.
 func Collect(r Reader) (*Samples, error) {
+	if r == nil {
+		return nil, errors.New("ingest: Collect needs a reader, got nil")
+	}
 	sc := r.Schema()
 	s := &Samples{Meta: map[string]string{}}
 	if p := planOf(r); p != nil {
@@ -200,12 +209,16 @@ func applySchemaMeta(s *Samples, sc *arrow.Schema) {
 // schema returns the canonical schema of s, with its metadata.
 func (s *Samples) schema() (*arrow.Schema, []int, error) {
 	n := s.Len()
+	name := s.Source
+	if name == "" {
+		name = "samples"
+	}
 	var out []int
 	for c := 0; c < nOut; c++ {
 		if c == cGroup {
 			if s.Group != nil {
 				if len(s.Group) != n {
-					return nil, nil, fmt.Errorf("ingest: %s: column group has %d rows, time has %d", s.Source, len(s.Group), n)
+					return nil, nil, fmt.Errorf("ingest: %s: column group has %d rows, time has %d", name, len(s.Group), n)
 				}
 				out = append(out, c)
 			}
@@ -214,12 +227,12 @@ func (s *Samples) schema() (*arrow.Schema, []int, error) {
 		v := *s.column(c)
 		if v == nil {
 			if c == cBx || c == cBy || c == cBz {
-				return nil, nil, fmt.Errorf("ingest: %s: column %s is missing", s.Source, canonNames[c])
+				return nil, nil, fmt.Errorf("ingest: %s: column %s is missing", name, canonNames[c])
 			}
 			continue
 		}
 		if len(v) != n {
-			return nil, nil, fmt.Errorf("ingest: %s: column %s has %d rows, time has %d", s.Source, canonNames[c], len(v), n)
+			return nil, nil, fmt.Errorf("ingest: %s: column %s has %d rows, time has %d", name, canonNames[c], len(v), n)
 		}
 		out = append(out, c)
 	}
@@ -261,8 +274,13 @@ type samplesReader struct {
 }
 
 // NewSamplesReader streams s as canonical record batches of up to rows rows
-// (0: 65536), allocated from mem (nil: the default allocator).
+// (0: 65536), allocated from mem (nil: the default allocator). A nil s is
+// an error; so is one without the bx, by and bz columns, or with columns of
+// other lengths than Time.
 func NewSamplesReader(s *Samples, rows int, mem memory.Allocator) (Reader, error) {
+	if s == nil {
+		return nil, errors.New("ingest: NewSamplesReader needs samples, got nil")
+	}
 	sc, out, err := s.schema()
 	if err != nil {
 		return nil, err

@@ -27,6 +27,9 @@ import (
 // first, a file system that allocates blocks late (ext4, XFS) can show
 // the new name with no data or part of it.
 func WriteFileAtomic(path string, write func(w io.Writer) error) (err error) {
+	if write == nil {
+		return fmt.Errorf("ingest: %s: WriteFileAtomic needs a write function, got nil", path)
+	}
 	dir, base := filepath.Split(path)
 	if dir == "" {
 		dir = "."
@@ -91,8 +94,11 @@ func SyncDir(dir string) error {
 // WriteSamples writes s to path in the format given by the extension
 // (.csv, .arrow, .arrows, .parquet), atomically. Values round-trip exactly
 // through every format (CSV uses the shortest decimal that reads back to
-// the same float64).
+// the same float64). A nil s is an error, and nothing is written.
 func WriteSamples(path string, s *Samples) error {
+	if s == nil {
+		return fmt.Errorf("ingest: %s: WriteSamples needs samples, got nil", path)
+	}
 	r, err := NewSamplesReader(s, 0, nil)
 	if err != nil {
 		return err
@@ -103,8 +109,12 @@ func WriteSamples(path string, s *Samples) error {
 
 // WriteReader streams the rest of r to path in the format given by the
 // extension (.csv, .arrow, .arrows, .parquet), atomically: if r fails
-// part-way nothing is left at path. It does not release r.
+// part-way nothing is left at path. It does not release r. A nil r is
+// an error, and nothing is written.
 func WriteReader(path string, r Reader) error {
+	if r == nil {
+		return fmt.Errorf("ingest: %s: WriteReader needs a reader, got nil", path)
+	}
 	format, err := FormatFromExt(path)
 	if err != nil {
 		return err
@@ -115,8 +125,11 @@ func WriteReader(path string, r Reader) error {
 // WriteReaderTo streams the rest of r to w in format (FormatCSV,
 // FormatArrowFile, FormatArrowStream or FormatParquet), for a caller that
 // makes and places the file itself; name names it in errors. It does not
-// release r.
+// release r. A nil w or r is an error.
 func WriteReaderTo(w io.Writer, name string, format Format, r Reader) error {
+	if w == nil || r == nil {
+		return fmt.Errorf("ingest: %s: WriteReaderTo needs a writer and a reader, got a nil one", name)
+	}
 	var err error
 	switch format {
 	case FormatCSV:

@@ -3,7 +3,10 @@ package inverse
 // Polyline is a chain of straight segments through Vertices; segment i runs from
 // Vertices[i] to Vertices[i+1] and carries its own current (Currents[i] in the methods
 // below), so current lost along a route appears as a step between segments. Each segment
-// uses the stable Segment form.
+// uses the stable Segment form. A Polyline of fewer than 2 vertices has no segments and
+// no field (its methods take no currents and give zeros); FitStrengths, StrengthsRSS,
+// ReadingBasis and StrengthsScan refuse it with an error, and one with two successive
+// vertices in one place (a leg of no length, whose current nothing sets).
 type Polyline struct {
 	Vertices [][3]float64
 }

@@ -181,7 +181,7 @@ type Settings struct {
 	Dip *float64
 	// Dipoles is the number of point dipoles (ferrous objects: a valve, a buried drum)
 	// fitted together with the lines, so that their fields are not mistaken for
-	// currents; 0 fits none. Each is seeded under the peak of the residual of the
+	// currents; 0 fits none, and at most 4 (FitLines refuses more). Each is seeded under the peak of the residual of the
 	// fit without it. A dipole whose moment the readings do not set apart from zero
 	// (DipoleMomentNotSignificantNote) has no identifiable position and the Result's
 	// notes carry UnsupportedCountNote; one above ReferenceZ is noted

@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"strings"
 )
 
 // StrengthsScan answers StrengthsRSS for many placements of one extra source beside
@@ -43,9 +44,12 @@ func NewStrengthsScan(p *Problem, fixed []Source, set *Settings) (*StrengthsScan
 	if err := set.check(); err != nil {
 		return nil, err
 	}
+	if err := checkSources("NewStrengthsScan", "fixed", fixed); err != nil {
+		return nil, err
+	}
 	s := set.orDefault()
 	sv := newSurvey(p)
-	phi, m, q, _, _, err := strengthsBasis(p, fixed, s, sv)
+	phi, m, q, _, _, err := strengthsBasis(p, "fixed", fixed, s, sv)
 	if err != nil {
 		return nil, err
 	}
@@ -70,7 +74,7 @@ func NewStrengthsScan(p *Problem, fixed []Source, set *Settings) (*StrengthsScan
 		}
 		for k := range q {
 			if math.Abs(sc.a[k*m+k]) <= 1e-11*sc.rmax {
-				return nil, fmt.Errorf("inverse: strength %d cannot be separated from the others with these readings", k)
+				return nil, inseparable("fixed", fixed, k)
 			}
 		}
 		houseApplyQT(sc.a, m, q, sc.tau, sc.qty, sc.nr)
@@ -82,8 +86,11 @@ func NewStrengthsScan(p *Problem, fixed []Source, set *Settings) (*StrengthsScan
 // real and imaginary parts) of the fit of the fixed sources, the background and extra
 // together: StrengthsRSS(p, append(fixed, extra), set).
 func (sc *StrengthsScan) RSS(extra Source) (float64, error) {
-	if extra == nil {
-		return 0, errors.New("inverse: StrengthsScan.RSS needs a source")
+	if sc == nil {
+		return 0, errors.New("inverse: StrengthsScan.RSS: no scan (nil); make one with NewStrengthsScan")
+	}
+	if err := checkSources("StrengthsScan.RSS", "", []Source{extra}); err != nil {
+		return 0, err
 	}
 	m, nf, nr := sc.m, sc.nf, sc.nr
 	k := extra.NumStrengths()
@@ -91,8 +98,8 @@ func (sc *StrengthsScan) RSS(extra Source) (float64, error) {
 		return 0, fmt.Errorf("inverse: %d readings (3 axes each) are too few for %d strengths", m/3, nf+k)
 	}
 	sc.e = grow(sc.e, m*k)
-	if err := sourceBasis(sc.p, extra, nf, sc.e, 1, m, 0); err != nil {
-		return 0, err
+	if err := sourceBasis(sc.p, extra, sc.e, 1, m, 0); err != nil {
+		return 0, nameOnSource(err, sourceLabel("", 0, extra))
 	}
 	// Project on the complement of the fixed columns and factor what is left.
 	if nf > 0 {
@@ -111,7 +118,7 @@ func (sc *StrengthsScan) RSS(extra Source) (float64, error) {
 	}
 	for c := range k {
 		if math.Abs(et[c*mt+c]) <= 1e-11*rmax {
-			return 0, fmt.Errorf("inverse: strength %d cannot be separated from the others with these readings", nf+c)
+			return 0, fmt.Errorf("inverse: %s cannot be separated from the fixed sources and the background with these readings", strings.Replace(strengthName("", []Source{extra}, c), "the source", "the extra source", 1))
 		}
 	}
 	var rss float64

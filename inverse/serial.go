@@ -46,8 +46,11 @@ const AR1MaxRho = 99.0 / 101
 
 // ResidualAR1 returns the lag-1 autocorrelation of r's residuals in reading
 // order (the order of the traverse), pooled over the axes and, for AC, the
-// in-phase and quadrature parts; 0 when there are too few.
+// in-phase and quadrature parts; 0 when there are too few (or r is nil).
 func ResidualAR1(r *Result) float64 {
+	if r == nil {
+		return 0
+	}
 	if r.ResidualPhasors != nil {
 		n := len(r.ResidualPhasors)
 		flat := make([]float64, 6*n)

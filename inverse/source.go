@@ -29,8 +29,18 @@ type Source interface {
 
 // Fields evaluates src at every point with the given strengths and returns the fields in
 // tesla. dst is reused when it has the right length. It panics if len(strengths) !=
-// src.NumStrengths().
+// src.NumStrengths(). A nil src has no strengths and no field (zeros).
 func Fields(src Source, points [][3]float64, strengths []float64, dst [][3]float64) [][3]float64 {
+	if src == nil {
+		if len(strengths) != 0 {
+			panic("inverse: Fields: wrong number of strengths")
+		}
+		if len(dst) != len(points) {
+			return make([][3]float64, len(points))
+		}
+		clear(dst)
+		return dst
+	}
 	k := src.NumStrengths()
 	if len(strengths) != k {
 		panic("inverse: Fields: wrong number of strengths")

@@ -4,7 +4,6 @@ import (
 	"errors"
 	"fmt"
 	"math"
-	"reflect"
 
 	"gonum.org/v1/gonum/blas"
 	"gonum.org/v1/gonum/blas/blas64"
@@ -46,18 +45,21 @@ func FitStrengths(p *Problem, sources []Source, set *Settings) (*Result, error) 
 	if len(sources) == 0 {
 		return nil, errors.New("inverse: FitStrengths needs at least one source")
 	}
-	if err := checkSources("FitStrengths", sources); err != nil {
+	if err := checkSources("FitStrengths", "sources", sources); err != nil {
 		return nil, err
 	}
 	s := set.orDefault()
 	sv := newSurvey(p)
 	n, nr := len(p.Points), sv.nrhs
-	phi, m, q, ns, nb, err := strengthsBasis(p, sources, s, sv)
+	phi, m, q, ns, nb, err := strengthsBasis(p, "sources", sources, s, sv)
 	if err != nil {
 		return nil, err
 	}
 	phiCopy := append([]float64(nil), phi...)
 	coef, err := solveLinear(phi, m, q, sv.y, nr)
+	if k, ok := err.(inseparableColumn); ok {
+		return nil, inseparable("sources", sources, int(k))
+	}
 	if err != nil {
 		return nil, err
 	}
@@ -92,7 +94,7 @@ func FitStrengths(p *Problem, sources []Source, set *Settings) (*Result, error) 
 	r.Covariance = cov
 	for j := range q {
 		if unres[j] {
-			return nil, fmt.Errorf("inverse: strength %d cannot be separated from the others with these readings", j)
+			return nil, inseparable("sources", sources, j)
 		}
 	}
 	sig := func(j int) float64 { return math.Sqrt(math.Max(cov.At(j, j), 0)) }
@@ -106,7 +108,7 @@ func FitStrengths(p *Problem, sources []Source, set *Settings) (*Result, error) 
 		r.ParamNames = append(r.ParamNames, fmt.Sprintf("strength%d", j+1))
 	}
 	for j := range nb {
-		r.ParamNames = append(r.ParamNames, []string{"bg.e", "bg.n", "bg.u", "grad.ee", "grad.en", "grad.eu", "grad.nn", "grad.nu"}[j])
+		r.ParamNames = append(r.ParamNames, backgroundNames[j])
 	}
 	for j := range min(nb, 3) {
 		if nr == 1 {
@@ -345,7 +347,7 @@ func flipCurrent(cur, phase float64, nr int) (float64, float64) {
 // strengthsBasis builds the design matrix of a fixed-geometry fit: m = 3 n rows
 // (readings by axis), q = ns + nb columns (source strengths, then background), in
 // nanotesla per unit strength, row-major.
-func strengthsBasis(p *Problem, sources []Source, s Settings, sv *survey) (phi []float64, m, q, ns, nb int, err error) {
+func strengthsBasis(p *Problem, list string, sources []Source, s Settings, sv *survey) (phi []float64, m, q, ns, nb int, err error) {
 	n := len(p.Points)
 	m = 3 * n
 	for _, src := range sources {
@@ -359,8 +361,8 @@ func strengthsBasis(p *Problem, sources []Source, s Settings, sv *survey) (phi [
 	phi = make([]float64, m*q)
 	col := 0
 	for si, src := range sources {
-		if err := sourceBasis(p, src, si, phi, q, 1, col); err != nil {
-			return nil, 0, 0, 0, 0, err
+		if err := sourceBasis(p, src, phi, q, 1, col); err != nil {
+			return nil, 0, 0, 0, 0, nameOnSource(err, sourceLabel(list, si, src))
 		}
 		col += src.NumStrengths()
 	}
@@ -390,14 +392,17 @@ func ReadingBasis(p *Problem, src Source) ([][][3]float64, error) {
 	if p == nil || src == nil {
 		return nil, errors.New("inverse: ReadingBasis needs a problem and a source")
 	}
+	if err := checkSources("ReadingBasis", "", []Source{src}); err != nil {
+		return nil, err
+	}
 	if p.Travel != nil && len(p.Travel) != len(p.Points) {
 		return nil, fmt.Errorf("inverse: %d travels for %d readings", len(p.Travel), len(p.Points))
 	}
 	n, k := len(p.Points), src.NumStrengths()
 	m := 3 * n
 	col := make([]float64, m*k)
-	if err := sourceBasis(p, src, 0, col, 1, m, 0); err != nil {
-		return nil, err
+	if err := sourceBasis(p, src, col, 1, m, 0); err != nil {
+		return nil, nameOnSource(err, sourceLabel("", 0, src))
 	}
 	out := make([][][3]float64, n)
 	flat := make([][3]float64, n*k)
@@ -415,9 +420,9 @@ func ReadingBasis(p *Problem, src Source) ([][][3]float64, error) {
 // sourceBasis writes the field per unit strength of src, in nanotesla, at every
 // reading into phi: element (row 3i+j, strength c) goes to phi[row*rs + (col+c)*cs].
 // Point readings take the basis at the point; path-averaged readings (Problem.Travel)
-// its three-point Gauss-Legendre mean over the path (pathMean). si numbers the source
-// in the error returned when the field is not finite at a reading.
-func sourceBasis(p *Problem, src Source, si int, phi []float64, rs, cs, col int) error {
+// its three-point Gauss-Legendre mean over the path (pathMean). When the field is not
+// finite at a reading the error is an *onSourceError, for the caller to name the source.
+func sourceBasis(p *Problem, src Source, phi []float64, rs, cs, col int) error {
 	nodes := []struct {
 		off float64
 		w   float64
@@ -452,24 +457,10 @@ func sourceBasis(p *Problem, src Source, si int, phi []float64, rs, cs, col int)
 			for j := range 3 {
 				v := sum[c][j] / wsum * nT
 				if !finite(v) {
-					return fmt.Errorf("inverse: reading %d lies on source %d (or its path): the field is not finite there", i, si)
+					return &onSourceError{reading: i, at: r, path: p.Travel != nil}
 				}
 				phi[(3*i+j)*rs+(col+c)*cs] = v
 			}
-		}
-	}
-	return nil
-}
-
-// checkSources refuses a nil source, or a nil pointer to one, naming fn:
-// before, they panicked in the basis.
-func checkSources(fn string, sources []Source) error {
-	for i, src := range sources {
-		if src == nil {
-			return fmt.Errorf("inverse: %s source %d is nil", fn, i)
-		}
-		if v := reflect.ValueOf(src); v.Kind() == reflect.Pointer && v.IsNil() {
-			return fmt.Errorf("inverse: %s source %d is a nil %T", fn, i, src)
 		}
 	}
 	return nil
@@ -489,17 +480,20 @@ func StrengthsRSS(p *Problem, sources []Source, set *Settings) (float64, error) 
 	if len(sources) == 0 {
 		return 0, errors.New("inverse: StrengthsRSS needs at least one source")
 	}
-	if err := checkSources("StrengthsRSS", sources); err != nil {
+	if err := checkSources("StrengthsRSS", "sources", sources); err != nil {
 		return 0, err
 	}
 	sv := newSurvey(p)
-	phi, m, q, _, _, err := strengthsBasis(p, sources, set.orDefault(), sv)
+	phi, m, q, _, _, err := strengthsBasis(p, "sources", sources, set.orDefault(), sv)
 	if err != nil {
 		return 0, err
 	}
 	phiCopy := append([]float64(nil), phi...)
 	nr := sv.nrhs
 	coef, err := solveLinear(phi, m, q, sv.y, nr)
+	if k, ok := err.(inseparableColumn); ok {
+		return 0, inseparable("sources", sources, int(k))
+	}
 	if err != nil {
 		return 0, err
 	}
@@ -517,7 +511,8 @@ func StrengthsRSS(p *Problem, sources []Source, set *Settings) (float64, error) 
 }
 
 // solveLinear solves min ||phi c - y|| for nrhs right-hand sides by Householder QR
-// (phi m x q row-major is overwritten); y is m x nrhs row-major. It returns c (q x nrhs).
+// (phi m x q row-major is overwritten); y is m x nrhs row-major. It returns c (q x nrhs),
+// or an inseparableColumn error naming the first column the others leave no room for.
 func solveLinear(phi []float64, m, q int, y []float64, nrhs int) ([]float64, error) {
 	a := blas64.General{Rows: m, Cols: q, Stride: q, Data: phi}
 	tau := make([]float64, q)
@@ -533,7 +528,7 @@ func solveLinear(phi []float64, m, q int, y []float64, nrhs int) ([]float64, err
 	}
 	for k := range q {
 		if math.Abs(phi[k*q+k]) <= 1e-11*rmax {
-			return nil, fmt.Errorf("inverse: strength %d cannot be separated from the others with these readings", k)
+			return nil, inseparableColumn(k)
 		}
 	}
 	lapack64.Ormqr(blas.Left, blas.Trans, a, tau, c, work, lw)

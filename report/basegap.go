@@ -18,9 +18,9 @@ const BaseGapMark = "base gap:"
 // starts with it holds nothing else). Such a fit is sound; the base
 // correction under it is what needs review. The terminal's summary counts
 // these groups apart ("N marked for a base gap") and the crew report's
-// table words their fit so.
+// table words their fit so. False for a nil d or g.
 func (d *Document) BaseGapOnly(g *Group) bool {
-	if !g.OK || !strings.HasPrefix(g.Problem, BaseGapMark) {
+	if d == nil || g == nil || !g.OK || !strings.HasPrefix(g.Problem, BaseGapMark) {
 		return false
 	}
 	for _, f := range d.Findings {

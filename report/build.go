@@ -739,8 +739,11 @@ func currentK(ac bool) float64 {
 // readings with no conductor under them (a coil log with no AC field, a
 // traverse beyond the end of the cable) still places a line somewhere;
 // its depth and position are then noise, and a cover check on them would
-// warn of a conductor that is not there.
+// warn of a conductor that is not there. A nil s carries none: true.
 func NoCurrent(s *inverse.SourceEstimate, ac bool) bool {
+	if s == nil {
+		return true
+	}
 	if s.Kind == KindDipole {
 		return false
 	}

@@ -37,9 +37,9 @@ func (g Group) MarshalJSON() ([]byte, error) {
 // fits writes it (num: three significant figures with their trailing
 // zeros, "1.00", "0.950", "12.0"), for the terminal summary to agree with
 // it; ok is false, and the text empty, when the fit estimated none
-// (fitted), which is then not written as 0.
+// (fitted), which is then not written as 0, or g is nil.
 func GroupRMS(g *Group) (text string, ok bool) {
-	if !g.fitted() {
+	if g == nil || !g.fitted() {
 		return "", false
 	}
 	return num(g.RMS), true

@@ -1079,8 +1079,11 @@ func (v *view) summarise() {
 // point is not the conductor's: chainage 0 is then placed on the route
 // back from the first used station, and the bearing is the route's from
 // there (routeStart). It is empty without a route of two stations or
-// more, or without a used station.
+// more, or without a used station (or d is nil).
 func ChainageZero(d *Document) string {
+	if d == nil {
+		return ""
+	}
 	at, dir, ok := routeStart(d)
 	if !ok {
 		return ""
@@ -1216,10 +1219,10 @@ func preciseCoverOf(d *Document, r *Route, lo Station) string {
 // weak line, or one whose current is not consistent along its track:
 // coverDoubt), the sentence says so and gives the least cover of the
 // others too; the shallow reading is kept, as the safe side. It is empty
-// when there is no route or the ground is not known. Only used stations
-// count, as for the cover check.
+// when there is no route or the ground is not known (or d is nil). Only
+// used stations count, as for the cover check.
 func LeastCover(d *Document) string {
-	if d.Route == nil {
+	if d == nil || d.Route == nil {
 		return ""
 	}
 	var cands []coverAt
@@ -1425,8 +1428,13 @@ func hasString(list []string, v string) bool {
 
 // ConductorSummary says in a sentence, as the crew report's summary does,
 // where further conductor t runs beside conductor 1, what it carries and
-// which way, and how deep it lies.
-func ConductorSummary(d *Document, t *Track) string { return trackSummary(d, t) }
+// which way, and how deep it lies; "" for a nil d or t.
+func ConductorSummary(d *Document, t *Track) string {
+	if d == nil || t == nil {
+		return ""
+	}
+	return trackSummary(d, t)
+}
 
 // trackHeadline says in a sentence where a further conductor runs and
 // what it carries.
@@ -1860,8 +1868,13 @@ func groupHeights(d *Document) (lo, hi float64, ok bool) {
 // CoverColumn returns the cover of each of group g's sources as the crew
 // report's table of every group gives it ("n/a" where the ground is not
 // known, "–" where a source has none of its own), for the terminal's
-// table; one entry, "–", for a failed fit.
-func (d *Document) CoverColumn(g *Group) []string { return (&view{D: d}).groupRow(g).Cover }
+// table; one entry, "–", for a failed fit. None for a nil d or g.
+func (d *Document) CoverColumn(g *Group) []string {
+	if d == nil || g == nil {
+		return nil
+	}
+	return (&view{D: d}).groupRow(g).Cover
+}
 
 // Cover returns the cover (depth below the ground) of a depth below the
 // depth reference; ok is false when the ground is not known.

@@ -33,8 +33,11 @@ func WriteJSON(w io.Writer, d *Document) error {
 // messages (a file name); errors give the line and column of bad JSON.
 // Fields this version does not know are ignored, so documents from later
 // versions with added fields still read; a later schema_version is an
-// error.
+// error, and so is a nil r.
 func ReadJSON(r io.Reader, name string) (*Document, error) {
+	if r == nil {
+		return nil, fmt.Errorf("report: %s: no reader (nil)", name)
+	}
 	data, err := io.ReadAll(r)
 	if err != nil {
 		return nil, fmt.Errorf("report: %s: %w", name, err)

@@ -26,9 +26,8 @@ const (
 // Up to a fifth of the kept readings are these; when max is below 5 the
 // stride alone chooses.
 //
-// positions, measured and predicted must have equal lengths; NewProfile
-// panics otherwise, which is a programming mistake. It returns an error when
-// dir has no horizontal part or a value is not finite.
+// It returns an error when positions, measured and predicted differ in
+// length, dir has no horizontal part or a value is not finite.
 func NewProfile(positions, measured, predicted [][3]float64, point, dir [3]float64, component string, max int) (*Profile, error) {
 	return newProfile(positions, point, dir, component, max, measured, predicted, nil, nil)
 }
@@ -40,11 +39,11 @@ func NewProfile(positions, measured, predicted [][3]float64, point, dir [3]float
 func newProfile(positions [][3]float64, point, dir [3]float64, component string, max int, measured, predicted, mq, pq [][3]float64) (*Profile, error) {
 	n := len(positions)
 	if len(measured) != n || len(predicted) != n {
-		panic(fmt.Sprintf("report: NewProfile: %d positions, %d measured, %d predicted", n, len(measured), len(predicted)))
+		return nil, fmt.Errorf("report: NewProfile: %d positions, %d measured, %d predicted: want one of each per reading", n, len(measured), len(predicted))
 	}
 	quad := mq != nil || pq != nil
 	if quad && (len(mq) != n || len(pq) != n) {
-		panic(fmt.Sprintf("report: NewProfile: %d positions, %d measured and %d predicted quadrature", n, len(mq), len(pq)))
+		return nil, fmt.Errorf("report: NewProfile: %d positions, %d measured and %d predicted quadrature: want one of each per reading", n, len(mq), len(pq))
 	}
 	h := math.Hypot(dir[0], dir[1])
 	if h == 0 || math.IsNaN(h) || math.IsInf(h, 0) {

@@ -63,8 +63,12 @@ func (d *Document) rowPlace(g *Group, i int, s *Source) (p [3]float64, depth, de
 
 // SourcePlace is where the outputs place source i of group g: its
 // position, depth and depth sigma as results.csv, route.geojson and the
-// crew report give them (rowPlace), for the terminal's table.
+// crew report give them (rowPlace), for the terminal's table. Zeros for a
+// nil d or g, or an i that is not one of g's sources.
 func (d *Document) SourcePlace(g *Group, i int) (p [3]float64, depth, depthSigma float64) {
+	if d == nil || g == nil || i < 0 || i >= len(g.Sources) {
+		return p, 0, 0
+	}
 	p, depth, depthSigma, _ = d.rowPlace(g, i, &g.Sources[i])
 	return p, depth, depthSigma
 }
@@ -76,8 +80,11 @@ func (d *Document) SourcePlace(g *Group, i int) (p [3]float64, depth, depthSigma
 // "sum 1.7204 ± 0.0031" (with its phase for AC), at the lines' centre,
 // whose depth it gives; the second's the two shares, "of 0.9209 ± 0.0755
 // + 0.7995 ± 0.0755", and "(centre)" for the depth. ok is false for any
-// other source.
+// other source, and for a nil d or g.
 func (d *Document) SummedColumns(g *Group, i int) (current, depth string, ok bool) {
+	if d == nil || g == nil {
+		return "", "", false
+	}
 	st := d.summedStation(g)
 	if st == nil || !g.summedPart(i) {
 		return "", "", false
