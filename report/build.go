@@ -895,7 +895,14 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute boo
 	// at the minimum for practical purposes. Running out of iterations
 	// is a failure.
 	g.OK = (res.Status.Converged() || res.Status == inverse.Stalled) && len(res.Sources) > 0
-	g.Notes = append(g.Notes, res.Notes...)
+	for _, n := range res.Notes {
+		// The report judges every fit against its own poor-fit yardstick
+		// (poor-fit findings): inverse's note that the lines miss the
+		// readings' noise floor (inverse.LinesMissNote) would say it again.
+		if !strings.HasPrefix(n, inverse.LinesMissNote) {
+			g.Notes = append(g.Notes, n)
+		}
+	}
 	if f.PhaseRampHz != 0 {
 		hz, sigma := f.PhaseRampHz, f.PhaseRampSigmaHz
 		g.PhaseRampHz, g.PhaseRampSigmaHz = &hz, &sigma
