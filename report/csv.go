@@ -35,7 +35,8 @@ import (
 // (ok with a problem) or "failed" (ok false: its current, depth and cover
 // mean nothing, and a script drops the row), on every row of the group;
 // before, a failed fit's numbers read as usable to any program that did
-// not also read ok (found in review). station_scatter_current_a and
+// not also read ok (found in review). A failed fit's rows leave the fit's
+// numbers empty and give the centre of its readings (failedFitRow). station_scatter_current_a and
 // station_scatter_depth_m are, on the rows of a conductor's stations
 // (conductor not empty), the realistic spread of one station's current
 // and depth along that conductor's route (Route.StationScatterCurrent and
@@ -73,7 +74,8 @@ var csvCol = func() map[string]int {
 // gets one row with empty source columns), in the order of d.Groups: route
 // order when there is a route. Columns are named in the header row with
 // their units; positions and depths are those of the source's point_m
-// and depth_m (the group's centroid when it has no source), except where
+// and depth_m (the group's centroid when it has no source or its fit
+// failed, failedFitRow, whose rows leave the fit's numbers empty), except where
 // the row is a route station placed elsewhere (rowPlace): both lines of a
 // same-way split whose sum the route takes give the station's centre,
 // depth and cover (and offset_m the centre's, along the row's azimuth:
@@ -186,6 +188,12 @@ func WriteCSV(w io.Writer, d *Document) error {
 			continue
 		}
 		for i, s := range g.Sources {
+			if !g.OK {
+				if err := cw.Write(d.failedFitRow(&g, i, &s, base)); err != nil {
+					return fmt.Errorf("report: writing CSV: %w", err)
+				}
+				continue
+			}
 			at, depth, depthSigma, st := d.rowPlace(&g, i, &s)
 			off, offSigma := g.rowOffset(i, &s, at, st)
 			row := base(strconv.Itoa(i+1), s.Kind, at)
@@ -285,6 +293,33 @@ func WriteCSV(w io.Writer, d *Document) error {
 		return fmt.Errorf("report: writing CSV: %w", err)
 	}
 	return nil
+}
+
+// failedFitRow is results.csv's row for source i of group g, whose fit
+// failed (g.OK false; fit "failed"): base's cells (the group's own:
+// points, rms_nt, reference_chi2, dof, ok, problem, fit), its chainage,
+// conductor, used and left_out, placed at the centre of the group's
+// readings as route.geojson's "failed fit" Point is, and none of the
+// fit's numbers: current, phase, depth, cover, moment, azimuth, dip,
+// offset, the pair_ and sum_ columns and their sigmas are empty. Before,
+// they were written as for a sound fit, and a row 14 m past a cable's end
+// gave a cover of 0.636 m to any program that did not also read ok or
+// fit (found in review); the crew report and the terminal table show
+// "fit failed, no value" and dashes there, and results.json keeps the
+// numbers in the group's sources, beside its ok false, for diagnosis.
+func (d *Document) failedFitRow(g *Group, i int, s *Source, base func(string, string, [3]float64) []string) []string {
+	row := base(strconv.Itoa(i+1), s.Kind, g.Centroid)
+	if c := sourceConductor(d, g, i, s); c > 0 {
+		row[csvCol["conductor"]] = strconv.Itoa(c)
+	}
+	if c := d.sourceChainage(g, s); c != nil {
+		row[csvCol["chainage_m"]] = fix(*c, 3)
+	}
+	if st := d.stationOf(g, i, s); st != nil {
+		row[csvCol["used"]] = strconv.FormatBool(st.Used)
+		row[csvCol["left_out"]] = textCell(d.leftOut(st, s.Conductor))
+	}
+	return row
 }
 
 // textCell returns a text cell of a CSV file (a group's name, a message)

@@ -7,8 +7,13 @@ import (
 
 // SchemaVersion is the version of the result document written by this
 // package. It grows by one whenever a field changes meaning or is removed;
-// adding a field does not change it.
-const SchemaVersion = 1
+// adding a field does not change it. Version 2: a dipole source's moment
+// is moment_a_m2 and moment_sigma_a_m2 (moment_am2 and moment_sigma_am2 in
+// version 1, which ReadJSON still reads), the name results.csv and
+// route.geojson give it, and a dipole source has no direction, current_a,
+// offset_m, azimuth_deg, dip_deg (nor their sigmas) or span_m, which were
+// written as 0 for it (Source.MarshalJSON).
+const SchemaVersion = 2
 
 // Document is the result of one locate run: what was read, how it was
 // corrected, what was fitted per group, the route built from the groups and
@@ -472,8 +477,8 @@ type Source struct {
 	// Point, m: the stretch of conductor the readings see.
 	Span [2]float64 `json:"span_m"`
 	// Moment is a dipole's moment, A m^2, and its sigma; nil for lines.
-	Moment      *[3]float64 `json:"moment_am2,omitempty"`
-	MomentSigma *[3]float64 `json:"moment_sigma_am2,omitempty"`
+	Moment      *[3]float64 `json:"moment_a_m2,omitempty"`
+	MomentSigma *[3]float64 `json:"moment_sigma_a_m2,omitempty"`
 	// Unidentifiable lists quantities the readings cannot determine
 	// ("azimuth", "depth"); for a dipole also those of a line that do not
 	// apply to a point ("current", "offset", "azimuth", "dip").

@@ -51,11 +51,37 @@ func GroupRMS(g *Group) (text string, ok bool) {
 // place, whose fields cancel) has no current_sigma_a: its sigma is not
 // 0, which would read as an exact current, but undetermined, as
 // results.csv leaves the cell empty and route.geojson leaves it out
-// (found in review: ±237 A lines written with a sigma of 0). ReadJSON
-// reads the missing member as zero.
+// (found in review: ±237 A lines written with a sigma of 0). A dipole (a
+// magnetised object) has no direction, current_a, offset_m, azimuth_deg,
+// dip_deg, their sigmas or span_m: a point has none of them, and each
+// was written as 0, which read as a measured current of 0 A bearing due
+// north (found in review), where results.csv leaves the cells empty and
+// route.geojson leaves them out. Left out rather than null: a script
+// that reads a dipole's current_a fails at once instead of taking null
+// for 0, and the document already leaves out what does not apply
+// (phase_deg for DC, moment_a_m2 for a line). Its phase_deg, for AC, is
+// kept: the reference phase its moment_a_m2 is read at. ReadJSON reads
+// the missing members as zero.
 func (s Source) MarshalJSON() ([]byte, error) {
 	type plain Source // Source's members without this method
-	if s.Kind == KindDipole || !unresolved(&s, "current") {
+	// The members named here take the place of plain's of the same name
+	// (the shallower field wins) and, nil, are left out.
+	if s.Kind == KindDipole {
+		return json.Marshal(struct {
+			plain
+			Direction    *[3]float64 `json:"direction,omitempty"`
+			Current      *float64    `json:"current_a,omitempty"`
+			CurrentSigma *float64    `json:"current_sigma_a,omitempty"`
+			Offset       *float64    `json:"offset_m,omitempty"`
+			OffsetSigma  *float64    `json:"offset_sigma_m,omitempty"`
+			Azimuth      *float64    `json:"azimuth_deg,omitempty"`
+			AzimuthSigma *float64    `json:"azimuth_sigma_deg,omitempty"`
+			Dip          *float64    `json:"dip_deg,omitempty"`
+			DipSigma     *float64    `json:"dip_sigma_deg,omitempty"`
+			Span         *[2]float64 `json:"span_m,omitempty"`
+		}{plain: plain(s)})
+	}
+	if !unresolved(&s, "current") {
 		return json.Marshal(plain(s))
 	}
 	return json.Marshal(struct {

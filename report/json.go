@@ -33,7 +33,9 @@ func WriteJSON(w io.Writer, d *Document) error {
 // messages (a file name); errors give the line and column of bad JSON.
 // Fields this version does not know are ignored, so documents from later
 // versions with added fields still read; a later schema_version is an
-// error, and so is a nil r.
+// error, and so is a nil r. A version 1 document's dipole moments,
+// moment_am2 and moment_sigma_am2, are read as Source.Moment and
+// MomentSigma.
 func ReadJSON(r io.Reader, name string) (*Document, error) {
 	if r == nil {
 		return nil, fmt.Errorf("report: %s: no reader (nil)", name)
@@ -43,7 +45,11 @@ func ReadJSON(r io.Reader, name string) (*Document, error) {
 		return nil, fmt.Errorf("report: %s: %w", name, err)
 	}
 	var d Document
-	if err := json.Unmarshal(data, &d); err != nil {
+	err = json.Unmarshal(data, &d)
+	if err == nil && d.SchemaVersion == 1 {
+		err = readMomentV1(data, &d)
+	}
+	if err != nil {
 		var se *json.SyntaxError
 		var te *json.UnmarshalTypeError
 		switch {
@@ -60,6 +66,34 @@ func ReadJSON(r io.Reader, name string) (*Document, error) {
 		return nil, fmt.Errorf("%w (in %s)", err, name)
 	}
 	return &d, nil
+}
+
+// readMomentV1 fills the dipole moments of d, read from a version 1
+// document (data), from their version 1 names, moment_am2 and
+// moment_sigma_am2, now moment_a_m2 and moment_sigma_a_m2.
+func readMomentV1(data []byte, d *Document) error {
+	var v1 struct {
+		Groups []struct {
+			Sources []struct {
+				Moment      *[3]float64 `json:"moment_am2"`
+				MomentSigma *[3]float64 `json:"moment_sigma_am2"`
+			} `json:"sources"`
+		} `json:"groups"`
+	}
+	if err := json.Unmarshal(data, &v1); err != nil {
+		return err
+	}
+	for i, g := range v1.Groups {
+		for j, s := range g.Sources {
+			if i >= len(d.Groups) || j >= len(d.Groups[i].Sources) {
+				continue
+			}
+			if t := &d.Groups[i].Sources[j]; t.Moment == nil {
+				t.Moment, t.MomentSigma = s.Moment, s.MomentSigma
+			}
+		}
+	}
+	return nil
 }
 
 // jsonDocument is a Document as results.json holds it: the cautions

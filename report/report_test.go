@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"encoding/json"
 	"flag"
+	"fmt"
 	"math"
 	"os"
 	"path/filepath"
@@ -173,7 +174,11 @@ func TestReadJSONIgnoresAddedFields(t *testing.T) {
 	if err := WriteJSON(&buf, fenwickLane(false)); err != nil {
 		t.Fatal(err)
 	}
-	in := strings.Replace(buf.String(), `"schema_version": 1,`, `"schema_version": 1, "added_later": {"x": [1, 2]},`, 1)
+	v := fmt.Sprintf(`"schema_version": %d,`, SchemaVersion)
+	in := strings.Replace(buf.String(), v, v+` "added_later": {"x": [1, 2]},`, 1)
+	if in == buf.String() {
+		t.Fatalf("no %s in the document", v)
+	}
 	if _, err := ReadJSON(strings.NewReader(in), "newer.json"); err != nil {
 		t.Fatal(err)
 	}
