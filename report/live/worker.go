@@ -546,9 +546,9 @@ func (w *assetWorker) handle(m jetstream.Msg) error {
 		}
 	}
 	t0 = time.Now()
-	w.asm.clock = md.Timestamp
+	w.asm.clock, w.asm.marked = md.Timestamp, m.Headers().Get(broker.HeaderReplay) == "1"
 	res, _ := w.asm.addMsg(si, seq, b, t0, subj, data)
-	w.asm.clock = time.Time{}
+	w.asm.clock, w.asm.marked = time.Time{}, false
 	met.stage.WithLabelValues("assemble").Observe(time.Since(t0).Seconds())
 	switch res {
 	case outOfRange:
