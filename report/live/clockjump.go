@@ -121,12 +121,13 @@ func (a *assembler) paceSpan() float64 { return 10 * a.aheadMargin() }
 // under paceLive, catching up across a gap, would be held and kept with a
 // false clock-jump alarm). The mark turns off this hold and nothing else:
 // the max_ahead refusal (checkTimes), the hold for a sensor far ahead of
-// every other (addMsg) and the out-of-order refusal still apply, and a
-// run already held goes on as above. So a client that marks a jump of
-// every sensor of an asset gets it processed as dated with no clock-jump
-// alarm, as a gateway account can already by sending grace plus a window
-// of data in line for every sensor (with the alarm); the data sent after
-// it is refused as out of order up to max_ahead.
+// every other (addMsg), the out-of-order refusal and its alarm still
+// apply, and a run already held goes on as above. So a client that marks
+// a jump of every sensor of an asset gets it processed as dated with no
+// clock-jump alarm, as a gateway account can already by sending grace
+// plus a window of data in line for every sensor (with the alarm); the
+// data sent after it is refused as out of order, with an out-of-order
+// alarm, up to max_ahead.
 func (a *assembler) clockAhead(s int, seq uint64, b *broker.Batch, now time.Time, subj string, data []byte) (*broker.Batch, addResult, bool) {
 	if h := a.ahead[s]; len(h) > 0 {
 		if b.Time[0] < h[0].b.Time[0] {
