@@ -168,7 +168,7 @@ func runReplay(ctx context.Context, o *replayOptions, fs *pflag.FlagSet, args []
 	if err := checkBatchBytes(args[0], batches, o.format, o.maxBytes, o.batch); err != nil {
 		return err
 	}
-	set := &broker.ReplaySettings{Speed: o.speed, Encoding: enc, Shift: o.shift, MaxAhead: o.maxAhead, Resume: o.resume,
+	set := &broker.ReplaySettings{Speed: o.speed, Encoding: enc, Shift: o.shift, MaxAhead: o.maxAhead, Resume: o.resume, Mark: true,
 		Notify: func(msg string) { fmt.Fprintf(stderr, "replay: %s\n", msg) }}
 	if o.maxAhead > 2*replayAheadMargin {
 		set.MaxAhead = o.maxAhead - replayAheadMargin

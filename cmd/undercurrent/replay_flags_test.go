@@ -122,6 +122,11 @@ func TestReplayRefusesAssetServeDoesNotList(t *testing.T) {
 	if code, _, errOut := cli(t, "replay", log, "--asset", "fenwick-lane", "--speed", "0", "--broker", srv.ClientURL()); code != 0 {
 		t.Errorf("replay --asset fenwick-lane: exit %d:\n%s", code, errOut)
 	}
+	// replay marks what it sends, so that serve never takes its pace for
+	// a live sensor's (see broker.HeaderReplay).
+	if m, err := ds.GetLastMsgForSubject(c, broker.DataFilter("fenwick-lane")); err != nil || m.Header.Get(broker.HeaderReplay) != "1" {
+		t.Errorf("replay's last batch stored: err %v; want it marked %s: 1", err, broker.HeaderReplay)
+	}
 	cancel()
 	if c := <-served; c != 0 {
 		t.Fatalf("serve exited %d: %s", c, serveErr.String())

@@ -22,6 +22,11 @@ const (
 	HeaderSubject     = "Uc-Subject"   // dead letters: the subject it arrived on
 	HeaderSequence    = "Uc-Seq"       // dead letters: its sequence in UC_DATA
 	HeaderTruncated   = "Uc-Truncated" // dead letters: the payload's size in bytes, when only its start is kept
+	// HeaderReplay, set to "1" on a data message, says that it comes from
+	// a recorded log replayed (undercurrent replay, ReplaySettings.Mark),
+	// not from a sensor sending as it reads: the pipeline then never takes
+	// the pace it is sent at for a live one (see report/live, clockAhead).
+	HeaderReplay = "Uc-Replay"
 )
 
 // PublishBatch publishes b on uc.data.<asset>.<sensor> through JetStream and
@@ -32,12 +37,13 @@ const (
 // time, sent again with other batch edges) is stored. enc is ContentJSON
 // or ContentArrow.
 func PublishBatch(ctx context.Context, js jetstream.JetStream, b *Batch, enc string) (*jetstream.PubAck, error) {
-	return publishBatch(ctx, js, b, enc, nil)
+	return publishBatch(ctx, js, b, enc, false, nil)
 }
 
-// publishBatch is PublishBatch, calling retry (when not nil) before each
-// try again after a publish that got no answer.
-func publishBatch(ctx context.Context, js jetstream.JetStream, b *Batch, enc string, retry func(err error)) (*jetstream.PubAck, error) {
+// publishBatch is PublishBatch, marking the message as replayed
+// (HeaderReplay) when replayed is set, and calling retry (when not nil)
+// before each try again after a publish that got no answer.
+func publishBatch(ctx context.Context, js jetstream.JetStream, b *Batch, enc string, replayed bool, retry func(err error)) (*jetstream.PubAck, error) {
 	var data []byte
 	var err error
 	switch enc {
@@ -55,6 +61,9 @@ func publishBatch(ctx context.Context, js jetstream.JetStream, b *Batch, enc str
 	msg := nats.NewMsg(DataSubject(b.Asset, b.Sensor))
 	msg.Data = data
 	msg.Header.Set(HeaderContentType, enc)
+	if replayed {
+		msg.Header.Set(HeaderReplay, "1")
+	}
 	id := BatchID(b)
 	// A cluster electing a new stream leader (a node lost) answers nothing
 	// for a few seconds: the publish is tried again, with the same message

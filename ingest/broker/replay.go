@@ -161,6 +161,10 @@ type ReplaySettings struct {
 	// duplicate window, without storing again what was stored (the
 	// pipeline would refuse those as late, into its dead letters).
 	Resume bool
+	// Mark sets HeaderReplay on every message, so that the pipeline does
+	// not take the replay's pace for a live sensor's (undercurrent replay
+	// sets it; a test standing in for a live gateway leaves it off).
+	Mark bool
 }
 
 // ReplayStats summarises a replay.
@@ -281,7 +285,7 @@ func Replay(ctx context.Context, js jetstream.JetStream, batches []*Batch, set *
 			send = &c
 		}
 		told := false
-		ack, err := publishBatch(ctx, js, send, rs.Encoding, func(err error) {
+		ack, err := publishBatch(ctx, js, send, rs.Encoding, rs.Mark, func(err error) {
 			if !told && rs.Notify != nil {
 				rs.Notify(fmt.Sprintf("no acknowledgement from the broker for batch %d of %d (%v); trying again for up to %v", i+1, len(batches), err, publishRetryFor))
 				told = true

@@ -114,6 +114,20 @@ func (a *assembler) paceSpan() float64 { return 10 * a.aheadMargin() }
 // go to lateHeld, not away. clockAhead reports whether it dealt with b
 // (held it, perhaps filing it with its run: res is heldAhead); otherwise
 // b (perhaps trimmed) is filed as usual.
+//
+// A batch marked as replayed (broker.HeaderReplay, a.marked: undercurrent
+// replay sets it) never starts a hold: a replay's pace says nothing of a
+// live clock (one faster than paceCatch whose pace a long stall pulled
+// under paceLive, catching up across a gap, would be held and kept with a
+// false clock-jump alarm). The mark turns off this hold and nothing else:
+// the max_ahead refusal (checkTimes), the hold for a sensor far ahead of
+// every other (addMsg), the out-of-order refusal and its alarm still
+// apply, and a run already held goes on as above. So a client that marks
+// a jump of every sensor of an asset gets it processed as dated with no
+// clock-jump alarm, as a gateway account can already by sending grace
+// plus a window of data in line for every sensor (with the alarm); the
+// data sent after it is refused as out of order, with an out-of-order
+// alarm, up to max_ahead.
 func (a *assembler) clockAhead(s int, seq uint64, b *broker.Batch, now time.Time, subj string, data []byte) (*broker.Batch, addResult, bool) {
 	if h := a.ahead[s]; len(h) > 0 {
 		if b.Time[0] < h[0].b.Time[0] {
@@ -164,6 +178,9 @@ func (a *assembler) clockAhead(s int, seq uint64, b *broker.Batch, now time.Time
 	}
 	if len(a.held[s]) > 0 {
 		return b, added, false // left to the hold for a sensor far ahead of the others
+	}
+	if a.marked {
+		return b, added, false // a replayed log: its pace is not a live one
 	}
 	p := &a.pace[s]
 	if a.clock.IsZero() || math.IsInf(a.water[s], -1) || p.n == 0 {

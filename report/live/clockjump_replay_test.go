@@ -118,3 +118,87 @@ func TestClockJumpStalledReplayGapNotHeld(t *testing.T) {
 		}
 	}
 }
+
+// A log replayed with --now at 2 times real time that stalls 19 s at
+// 38 s of data time, just before a gap of every sensor from 40 s to 80 s
+// (invented data, the case left by rg17a's fix): the stall pulls the
+// sensors' pace over the last 30 to 60 s of the broker's clock to 40 s of
+// data in 38 s (1.05, under paceLive), and replay, waiting the gap out
+// to its schedule, sends the data after it 40 s ahead of the broker's
+// clock, more than a replay at up to paceCatch would have gained since
+// the pace's older anchor (23 s). Unmarked, as a gateway's, that is a
+// jump of every sensor: held, and kept after 3 s of data with a
+// clock-jump alarm per sensor. Marked as replayed (broker.HeaderReplay),
+// nothing is held, no jump reported, and every window has all its
+// samples. Before the mark was read, the marked run failed as the
+// unmarked one.
+func TestClockJumpMarkedReplayStallGapNotHeld(t *testing.T) {
+	const t0 = 1796104800.0
+	const speed, stall, at = 2.0, 19.0, 38.0
+	for _, marked := range []bool{false, true} {
+		a := newAssembler(time.Second, 2*time.Second, 3) // margin 3 s
+		var closed []*window
+		seq := uint64(0)
+		stored := t0
+		for step := 0; step < 1000; step++ {
+			d := 0.1 * float64(step)
+			if d >= 40-1e-9 && d < 80-1e-9 {
+				continue
+			}
+			due := t0 + d/speed // --now: the log starts at the clock
+			switch {
+			case d >= at-1e-9 && d < 40:
+				stored = t0 + at/speed + stall + 0.01*(d-at) // sent in a burst after the stall
+			default:
+				stored = math.Max(due, stored+0.001) // behind its schedule: sent at once
+			}
+			for s := 0; s < 3; s++ {
+				seq++
+				a.marked = marked
+				r := feedAt(a, s, seq, t0+d, stored)
+				a.marked = false
+				if !marked {
+					continue
+				}
+				// The first sensor back after the asset's gap is held as ahead
+				// of the others until they come (heldBack), as unmarked.
+				if r != added && !(r == heldBack && s == 0 && math.Abs(d-80) < 1e-9) {
+					t.Fatalf("marked: sensor %d batch at %.1f s (%.1f s ahead of the clock): %v, want added", s, d, t0+d-stored, r)
+				}
+			}
+			closed = append(closed, a.ready(time.Unix(0, int64(stored*1e9)), 0)...)
+		}
+		closed = append(closed, a.ready(time.Unix(int64(t0)+3600, 0), time.Nanosecond)...)
+		jumps := a.takeJumps()
+		if !marked {
+			// The gateway's behaviour, kept: a jump of every sensor kept as
+			// dated, one alarm each (TestClockJump* cover the rest).
+			kept := map[int]bool{}
+			for _, j := range jumps {
+				if j.confirmed {
+					kept[j.sensor] = true
+				}
+			}
+			if len(kept) != 3 {
+				t.Errorf("unmarked: jumps %+v, want every sensor's run held and kept as dated", jumps)
+			}
+			continue
+		}
+		if len(jumps) != 0 {
+			t.Errorf("marked: %d clock jumps reported, want none: %+v", len(jumps), jumps)
+		}
+		n := 0
+		for _, w := range closed {
+			n++
+			for s := 0; s < 3; s++ {
+				if got := w.Sensors[s].len(); got != 100 {
+					t.Errorf("marked: window at %.0f s sensor %d: %d samples, want 100", w.Start-t0, s, got)
+				}
+			}
+		}
+		// 40 s before the gap and 20 s after it, in 1 s windows.
+		if n != 60 {
+			t.Errorf("marked: %d windows closed, want 60", n)
+		}
+	}
+}

@@ -263,8 +263,16 @@ const (
 	// processed as dated when it went on in line with them (subject: the
 	// sensor; value: how far ahead of the broker's clock, s).
 	AlarmClockJump = "clock-jump"
+	// AlarmOutOfOrder: a sensor's batches went back before its last
+	// sample, two or more over grace plus a window of the broker's clock,
+	// and were refused (a gateway clock set back; subject: the sensor;
+	// value: how long the refusals have lasted on the broker's clock, s;
+	// threshold: grace plus a window). Raised once per run of refusals,
+	// and cleared (Cleared, Peak the run's length) by the sensor's next
+	// batch accepted.
+	AlarmOutOfOrder = "out-of-order"
 )
 
 // AlarmKinds lists every alarm kind the service raises; the alarms API
 // refuses any other kind.
-var AlarmKinds = []string{AlarmOverCurrent, AlarmImbalance, AlarmStep, AlarmSilent, AlarmStuck, AlarmSaturated, AlarmDegraded, AlarmImplausible, AlarmDataLost, AlarmInconsistent, AlarmCommissioning, AlarmClockJump}
+var AlarmKinds = []string{AlarmOverCurrent, AlarmImbalance, AlarmStep, AlarmSilent, AlarmStuck, AlarmSaturated, AlarmDegraded, AlarmImplausible, AlarmDataLost, AlarmInconsistent, AlarmCommissioning, AlarmClockJump, AlarmOutOfOrder}

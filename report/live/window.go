@@ -82,8 +82,11 @@ type assembler struct {
 	// pace follows each sensor's data time against the broker's clock.
 	pace []paceTrack
 	// clock is the broker's clock when the batch being added was stored;
-	// zero leaves the clock-jump check out.
-	clock time.Time
+	// zero leaves the clock-jump check out. marked says that the batch
+	// being added came marked as replayed (broker.HeaderReplay): its
+	// pace is not taken for a live one (see clockAhead).
+	clock  time.Time
+	marked bool
 	// lateHeld lists held batches that were filed after every window they
 	// fall in was closed, for the caller to refuse as late; filed counts
 	// the samples of held batches filed (for the samples counter).

@@ -54,6 +54,11 @@ type checkpoint struct {
 	// SilentEarly is the asset's silent alarm raised before its first
 	// published window (see checkSilence), until that window is published.
 	SilentEarly *earlySilence `json:"silent_early,omitempty"`
+	// OutOfOrder holds, by sensor, the runs of batches refused as out of
+	// order since the sensor's last batch accepted (see noteOutOfOrder),
+	// so that a successor neither raises their alarm again nor loses its
+	// clearing.
+	OutOfOrder map[string]*outOfOrderRun `json:"out_of_order,omitempty"`
 }
 
 // earlySilence is an asset-wide silent alarm raised before the asset's
@@ -546,9 +551,9 @@ func (w *assetWorker) handle(m jetstream.Msg) error {
 		}
 	}
 	t0 = time.Now()
-	w.asm.clock = md.Timestamp
+	w.asm.clock, w.asm.marked = md.Timestamp, m.Headers().Get(broker.HeaderReplay) == "1"
 	res, _ := w.asm.addMsg(si, seq, b, t0, subj, data)
-	w.asm.clock = time.Time{}
+	w.asm.clock, w.asm.marked = time.Time{}, false
 	met.stage.WithLabelValues("assemble").Observe(time.Since(t0).Seconds())
 	switch res {
 	case outOfRange:
@@ -571,6 +576,11 @@ func (w *assetWorker) handle(m jetstream.Msg) error {
 		}
 		return w.closeReady(t0, 0)
 	case outOfOrder:
+		if !replayed {
+			if err := w.noteOutOfOrder(sensor, seq, md.Timestamp, b.Time[b.Len()-1]); err != nil {
+				return err
+			}
+		}
 		return w.deadLetter(broker.ReasonOutOfOrder, subj, seq, data,
 			fmt.Errorf("live: %s: batch from %v to %v is not after the sensor's last sample (%v)", subj, b.Time[0], b.Time[b.Len()-1], w.asm.water[si]))
 	case late:
@@ -583,6 +593,11 @@ func (w *assetWorker) handle(m jetstream.Msg) error {
 	}
 	w.noteData(md.Timestamp, t0)
 	met.messages.WithLabelValues(w.asset.Name, "accepted").Inc()
+	if !replayed {
+		if err := w.inOrder(sensor); err != nil {
+			return err
+		}
+	}
 	met.samples.WithLabelValues(w.asset.Name).Add(float64(b.Len() - w.asm.overlap))
 	if k := w.asm.overlap; k > 0 {
 		w.noteOverlap(sensor, subj, seq, k, b)
