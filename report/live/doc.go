@@ -37,7 +37,7 @@
 // uc_overlap_samples_total, and the rest are filed; a batch with no sample
 // after it is dead-lettered as out-of-order, and one entirely inside
 // published windows as late. A batch of a sensor at a live pace (at most
-// 1.5 s of data per second of the broker's clock) that jumps more than
+// 1.1 s of data per second of the broker's clock) that jumps more than
 // Grace plus a window past where that pace puts it, past the broker's
 // clock and past every other sensor (a gateway clock stepped forward) is
 // held, so that it cannot make the true data after it out-of-order: when
