@@ -336,6 +336,7 @@ func (r *arrowReader) Next() bool {
 		if rec == nil {
 			r.ended = true
 			r.pl.finishGroups()
+			r.pl.finishNoFix()
 			r.notePositionSteps()
 			r.Release()
 			return false
@@ -420,7 +421,14 @@ func (r *arrowReader) findOrigin() error {
 		}
 	}()
 	var lat, lon, h []float64
-	for pl.origin == nil {
+	var zero *Geodetic // the first reading without a fix (noFix), as the CSV reader
+	read := 0
+	defer func() {
+		if pl.origin == nil && zero != nil {
+			pl.setOrigin(*zero)
+		}
+	}()
+	for pl.origin == nil && !(zero != nil && read > noFixAhead/8) {
 		rec, err := r.readSrc()
 		if err != nil || rec == nil {
 			if r.rewind == nil {
@@ -448,10 +456,16 @@ func (r *arrowReader) findOrigin() error {
 				o.H = h[i]
 			}
 			if finite(o.Lat) && finite(o.Lon) && finite(o.H) {
-				pl.setOrigin(o)
-				break
+				if !noFix(o.Lat, o.Lon) {
+					pl.setOrigin(o)
+					break
+				}
+				if zero == nil {
+					zero = &o
+				}
 			}
 		}
+		read += len(lat)
 	}
 	if r.rewind != nil {
 		return r.rewind()
@@ -551,6 +565,13 @@ func (r *arrowReader) convert(rec arrow.RecordBatch) (arrow.RecordBatch, error) 
 		}
 	}
 	pl.transform(rb)
+	if rb.noFix > 0 {
+		at := make([]string, len(rb.noFixRow))
+		for j, i := range rb.noFixRow {
+			at[j] = r.name + batchRow(r.batch, i, r.start+int64(i))
+		}
+		pl.noteNoFix(rb.noFix, at)
+	}
 	var raw arrow.Array
 	if pl.src[cTime] >= 0 {
 		raw = rec.Column(pl.src[cTime])

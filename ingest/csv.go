@@ -104,7 +104,11 @@ type csvResult struct {
 	rows      int // rows in rec
 	noGroup   int // rows with an empty group cell
 	noGroupAt int // line of the first of them
-	nulLine   int // first line of NUL bytes alone, skipped; 0 if none
+	// noFix counts the readings left out at latitude 0, longitude 0,
+	// noFixAt the places (file:line) of the first few.
+	noFix   int
+	noFixAt []string
+	nulLine int // first line of NUL bytes alone, skipped; 0 if none
 }
 
 func (r *csvReader) plan() *plan                    { return r.pl }
@@ -246,8 +250,12 @@ func newCSVReader(name string, rd io.Reader, cfg *config) (*csvReader, error) {
 	r.fast = !r.ws && r.delim != '"' && !cfg.slowOnly && !r.decComma
 	startLine := lineNo + 1
 	if pl.geodetic && pl.origin == nil {
-		// The origin is the first reading: parse ahead to it.
+		// The origin is the first reading: parse ahead to it. A reading at
+		// latitude 0, longitude 0 is a receiver with no fix yet (noFix):
+		// the origin is the first after it, unless none comes within
+		// noFixAhead bytes, when it is the first such reading.
 		var rb rawBatch
+		var zero *Geodetic
 		for {
 			raw, err := readLine(r.br)
 			raw, open, err := r.finishRecord(raw, err)
@@ -263,14 +271,22 @@ func newCSVReader(name string, rd io.Reader, cfg *config) (*csvReader, error) {
 						o.H = rb.f[cHeight][0]
 					}
 					if finite(o.Lat) && finite(o.Lon) && finite(o.H) {
-						pl.setOrigin(o)
-						break
+						if !noFix(o.Lat, o.Lon) {
+							pl.setOrigin(o)
+							break
+						}
+						if zero == nil {
+							zero = &o
+						}
 					}
 				}
 			}
-			if err != nil {
+			if err != nil || zero != nil && len(carry) > noFixAhead {
 				break
 			}
+		}
+		if pl.origin == nil && zero != nil {
+			pl.setOrigin(*zero)
 		}
 		if pl.origin == nil { // no usable first reading; the parse below reports why
 			pl.setOrigin(Geodetic{})
@@ -1127,13 +1143,20 @@ func (r *csvReader) parseJob(j csvJob, rb *rawBatch) csvResult {
 		return res
 	}
 	pl.transform(rb)
+	var noFixAt []string
+	for _, ln := range rb.noFixLine {
+		noFixAt = append(noFixAt, fmt.Sprintf("%s:%d", r.name, ln))
+	}
+	if rb.n == 0 { // every reading without a fix
+		return csvResult{firstTime: math.NaN(), lastTime: math.NaN(), nulLine: rb.nulLine, noFix: rb.noFix, noFixAt: noFixAt}
+	}
 	t := rb.f[cTime]
 	if r.pl.orderAll {
 		if i := firstBackwards(t, math.NaN()); i > 0 {
 			return csvResult{err: r.chunkBackwards(j, rb, i)}
 		}
 	}
-	res := csvResult{rec: pl.record(r.cfg.mem, rb), lastTime: lastTime(t, math.NaN()), naiveLine: rb.naiveLine, naiveText: rb.naiveText, nulLine: rb.nulLine}
+	res := csvResult{rec: pl.record(r.cfg.mem, rb), lastTime: lastTime(t, math.NaN()), naiveLine: rb.naiveLine, naiveText: rb.naiveText, nulLine: rb.nulLine, noFix: rb.noFix, noFixAt: noFixAt}
 	if pl.orderGroup {
 		res.lines = append([]int(nil), rb.line[:rb.n]...)
 	}
@@ -1265,6 +1288,7 @@ func (r *csvReader) Next() bool {
 		if !ok {
 			r.ended = true
 			r.pl.finishGroups()
+			r.pl.finishNoFix()
 			// split has ended (it closed pending): r.nulAt is settled.
 			at := r.nulLine
 			if r.nulAt > 0 && (at == 0 || r.nulAt < at) {
@@ -1281,6 +1305,9 @@ func (r *csvReader) Next() bool {
 		res := <-ch
 		if res.nulLine > 0 && r.nulLine == 0 {
 			r.nulLine = res.nulLine
+		}
+		if res.noFix > 0 {
+			r.pl.noteNoFix(res.noFix, res.noFixAt)
 		}
 		if res.err != nil {
 			r.err = res.err

@@ -64,6 +64,76 @@ type plan struct {
 	// frameStated: inFrame was given (WithFrame) or stated by the input's
 	// metadata (MetaFrame, IAGA-2002's elements), not assumed.
 	frameStated bool
+	// zeroNoFix: the origin lies over noFixKm from latitude 0, longitude 0,
+	// so a reading there is a receiver's placeholder for no fix, left out
+	// (noFix); noFixRows counts those left out, noFixAt the places of the
+	// first few (see noteNoFix).
+	zeroNoFix bool
+	noFixRows int64
+	noFixAt   []string
+}
+
+// noFixKm is the least distance, km, of a latitude/longitude log's origin
+// from latitude 0, longitude 0 for a reading at exactly 0, 0 to be taken
+// as no fix: many GNSS receivers write 0, 0 (and height 0) before they
+// have a fix. Taken as a position it lay 5800 km from a survey at 52
+// degrees north: as the default origin it put every reading there and
+// read a 25 A cable as 17.7 A, its cover 0.69 m for 1.10 m, with every
+// fit but the first "sound" (found in review); mid-survey, it failed its
+// traverse's fit. No survey spans 50 km (an origin farther than that
+// from the readings is refused on the command line).
+const noFixKm = 50
+
+// noFixAhead is how many bytes of a latitude/longitude log read with the
+// default origin are parsed ahead past a first reading without a fix
+// (noFix) for the first with one, which becomes the origin; past it, with
+// none found, the origin is the first reading, at 0, 0.
+const noFixAhead = 16 << 20
+
+// noFixShown is how many places of readings without a fix a warning names.
+const noFixShown = 5
+
+// noFix reports whether a latitude/longitude reading is a receiver's
+// placeholder for no fix: exactly 0, 0.
+func noFix(lat, lon float64) bool { return lat == 0 && lon == 0 }
+
+// noteNoFix counts n readings left out as without a fix (noFix), at the
+// places at (file:line, or file, batch and row), for the warning.
+func (p *plan) noteNoFix(n int, at []string) {
+	p.noFixRows += int64(n)
+	for _, a := range at {
+		if len(p.noFixAt) < noFixShown {
+			p.noFixAt = append(p.noFixAt, a)
+		}
+	}
+}
+
+// finishNoFix warns, at the end of the input, of the readings left out
+// at latitude 0, longitude 0.
+func (p *plan) finishNoFix() {
+	if p.noFixRows == 0 {
+		return
+	}
+	more := ""
+	if p.noFixRows > int64(len(p.noFixAt)) {
+		more = fmt.Sprintf(" and %d more", p.noFixRows-int64(len(p.noFixAt)))
+	}
+	what := "1 reading"
+	if p.noFixRows > 1 {
+		what = fmt.Sprintf("%d readings", p.noFixRows)
+	}
+	p.warn("%s%s: latitude 0, longitude 0, %.0f km from the origin: a GNSS receiver's placeholder for no fix, not a position; %s left out, not fitted nor taken as the origin",
+		strings.Join(p.noFixAt, ", "), more, greatCircleKm(Geodetic{}, *p.origin), what)
+	p.noFixRows = 0 // warned once
+}
+
+// greatCircleKm is the distance between a and b along the sphere of the
+// Earth's mean radius (IUGG R1 = 6371.0088 km; haversine formula), in km.
+func greatCircleKm(a, b Geodetic) float64 {
+	rad := math.Pi / 180
+	dp, dl := (b.Lat-a.Lat)*rad, (b.Lon-a.Lon)*rad
+	h := math.Sin(dp/2)*math.Sin(dp/2) + math.Cos(a.Lat*rad)*math.Cos(b.Lat*rad)*math.Sin(dl/2)*math.Sin(dl/2)
+	return 2 * 6371.0088 * math.Asin(math.Sqrt(math.Min(1, h)))
 }
 
 // checkTimeUnit looks at the first time of the input (t, NaN for none in
@@ -508,6 +578,7 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 	}
 	if p.origin != nil {
 		p.enu = p.origin.frame()
+		p.zeroNoFix = greatCircleKm(Geodetic{}, *p.origin) > noFixKm
 	}
 	p.orderGroup = !cfg.allowBackwards && cfg.groupOrder && p.src[cGroup] >= 0 && !p.noTime
 	p.orderAll = !cfg.allowBackwards && !p.orderGroup && !p.noTime
@@ -941,6 +1012,7 @@ func defaultUnit(k kind) string {
 func (p *plan) setOrigin(o Geodetic) {
 	p.origin = &o
 	p.enu = o.frame()
+	p.zeroNoFix = greatCircleKm(Geodetic{}, o) > noFixKm
 	p.buildSchema()
 }
 
@@ -996,6 +1068,12 @@ type rawBatch struct {
 	naiveLine int
 	naiveText string
 	nulLine   int // first line of NUL bytes alone, skipped (text formats)
+	// noFix counts the readings left out at latitude 0, longitude 0
+	// (dropNoFix); noFixRow holds the rows of the first few in the batch
+	// as read, noFixLine their source lines (text formats).
+	noFix     int
+	noFixRow  []int
+	noFixLine []int
 }
 
 func (rb *rawBatch) reset(p *plan) {
@@ -1006,6 +1084,63 @@ func (rb *rawBatch) reset(p *plan) {
 	rb.group = rb.group[:0]
 	rb.line = rb.line[:0]
 	rb.naiveLine, rb.naiveText, rb.nulLine = 0, "", 0
+	rb.noFix, rb.noFixRow, rb.noFixLine = 0, rb.noFixRow[:0], rb.noFixLine[:0]
+}
+
+// dropNoFix leaves out of rb the readings at exactly latitude 0, longitude
+// 0 (noFix), keeping the others in order, and returns how many are kept;
+// rb.noFix counts those left out and noFixRow holds the first few's rows.
+func (rb *rawBatch) dropNoFix() int {
+	lat, lon := rb.f[cLat], rb.f[cLon]
+	n, k := rb.n, 0
+	for i := range n {
+		if noFix(lat[i], lon[i]) {
+			if len(rb.noFixRow) < noFixShown {
+				rb.noFixRow = append(rb.noFixRow, i)
+			}
+			rb.noFix++
+			continue
+		}
+		if k != i {
+			for c := range rb.f {
+				if len(rb.f[c]) == n {
+					rb.f[c][k] = rb.f[c][i]
+				}
+			}
+			if len(rb.group) == n {
+				rb.group[k] = rb.group[i]
+			}
+		}
+		k++
+	}
+	if k == n {
+		return n
+	}
+	// The lines of the rows left out, for the warning, before the lines
+	// are compacted like the values.
+	if len(rb.line) == n {
+		for j, i := range rb.noFixRow {
+			rb.noFixLine = append(rb.noFixLine[:j], rb.line[i])
+		}
+		k2 := 0
+		for i := range n {
+			if !noFix(lat[i], lon[i]) {
+				rb.line[k2] = rb.line[i]
+				k2++
+			}
+		}
+		rb.line = rb.line[:k]
+	}
+	for c := range rb.f {
+		if len(rb.f[c]) == n {
+			rb.f[c] = rb.f[c][:k]
+		}
+	}
+	if len(rb.group) == n {
+		rb.group = rb.group[:k]
+	}
+	rb.n = k
+	return k
 }
 
 // transform applies the frame and position conversions in place.
@@ -1020,6 +1155,9 @@ func (p *plan) transform(rb *rawBatch) {
 		}
 	}
 	if p.geodetic {
+		if p.zeroNoFix {
+			n = rb.dropNoFix()
+		}
 		h := rb.f[cHeight]
 		for i := 0; i < n; i++ {
 			g := Geodetic{Lat: rb.f[cLat][i], Lon: rb.f[cLon][i]}

@@ -422,8 +422,9 @@ type Result struct {
 	// strongest line.
 	Opposed []PairEstimate
 	// SameWay pairs the strongest line with a line the fit found beside it (within
-	// sameWayMaxAngle degrees, nearer than the deeper one's depth, or up to three
-	// depths when the weaker one's current is not resolved) carrying current
+	// sameWayMaxAngle degrees, nearer than 0.7 of the deeper one's distance below
+	// the mean sensor height, whatever the datum, or up to three such distances
+	// when the weaker one's current is not resolved) carrying current
 	// the same way, in shares the readings do not part: the sum of the two currents
 	// is known several times better than either (see sameWayOf). One conductor
 	// bending in depth or direction under the readings (where it dives under a road)

@@ -1353,7 +1353,22 @@ const sameWayMaxAngle = 60
 // equal. Two cables resolved by the readings have a ratio near or above 1.
 const sameWaySplit = 0.5
 
-// sameWayFarSpacing bounds the spacing, in depths of the deeper line, of two lines
+// sameWayNearSpacing bounds the spacing, in distances of the deeper line below the
+// mean sensor height, of two lines taken as one conductor split in two on the sum's
+// sigma alone (sameWaySplit). How well the readings part two lines goes with their
+// spacing over their distance from the sensors, whatever the depths are reported
+// from: taken in depths below Settings.ReferenceZ, the same log split two cables
+// 1.5 m apart, 1.3 and 1.6 m below the sensors 0.3 m up (1.53 m in the
+// cross-section), with the mean sensor height as datum and parted them with the
+// ground as datum, and the route lost the change of current on one (review). Cables
+// 0.7-0.9 m apart there (0.44-0.68 of the deeper one's distance, the traverse at the
+// change the farthest) are a split at nearly every traverse, 1.2 m apart (0.77) at
+// few; 0.7 is the ground datum's bound, the deeper line's depth, for lines 1.0 m
+// below sensors 0.3 m up, where most of the tests' scenarios lie.
+const sameWayNearSpacing = 0.7
+
+// sameWayFarSpacing bounds the spacing, in distances of the deeper line below the
+// mean sensor height, of two lines
 // taken as one conductor split in two when the weaker line's current is not resolved
 // (its sigma over pairRelSigma of itself). On a steel main with girth welds every 12
 // m (dipoles of 20-60 nT at the sensor, the pipe 70-130 nT), the fits took the pipe
@@ -1370,9 +1385,10 @@ const sameWayFarSpacing = 3
 // the readings do not part: within sameWayMaxAngle of it, its current's phasor
 // within 90 degrees of the strongest's once both are turned the same way (for DC,
 // of the same sign), and the sum of the two currents known to under sameWaySplit
-// of the smaller sigma of the two; the lines nearer each other than the deeper
-// line's depth, or up to sameWayFarSpacing depths apart when the weaker line's
-// current is not resolved (its sigma over pairRelSigma of itself). None
+// of the smaller sigma of the two; the lines nearer each other than
+// sameWayNearSpacing of the deeper line's distance below the mean sensor height,
+// or up to sameWayFarSpacing such distances apart when the weaker line's current
+// is not resolved (its sigma over pairRelSigma of itself). None
 // when an unresolved pair holds the strongest line or it has an opposite partner
 // (Opposed): the route then follows the pair.
 //
@@ -1384,13 +1400,15 @@ func (f *fitter) sameWayOf(c *candidate, su *summary) []PairEstimate {
 	var best *PairEstimate
 	f.linesBeside(c, su, sameWayMaxAngle, func(j int, base, sg []float64) {
 		a, b := &su.lines[0], &su.lines[j]
+		// The deeper line's distance below the sensors, not its reported depth.
+		h := f.sv.zmean - math.Min(a.Point[2], b.Point[2])
 		switch {
 		case !(a.CurrentSigma > 0) || !(b.CurrentSigma > 0):
 		// |I0 + Ij| > |I0 - Ij| when Re(I0 conj(Ij)) > 0: the same way.
 		case !(math.Abs(base[pqNet]) > 2*base[pqCurrentI]):
-		case !(base[pqSpacing] < sameWayFarSpacing*math.Max(a.Depth, b.Depth)):
+		case !(base[pqSpacing] < sameWayFarSpacing*h):
 		case !(sg[pqNet] < sameWaySplit*math.Min(a.CurrentSigma, b.CurrentSigma)):
-		case !(base[pqSpacing] < math.Max(a.Depth, b.Depth)) &&
+		case !(base[pqSpacing] < sameWayNearSpacing*h) &&
 			!(b.CurrentSigma > pairRelSigma*math.Abs(b.Current)):
 		case best != nil && best.Spacing <= base[pqSpacing]:
 		default:

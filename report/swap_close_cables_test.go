@@ -6,6 +6,7 @@ import (
 	"strings"
 	"testing"
 
+	"undercurrent/inverse"
 	"undercurrent/inverse/simulate"
 )
 
@@ -104,7 +105,13 @@ func checkLatticeSwap(t *testing.T, seed int64, east float64) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	d := simulatedDoc(t, sc)
+	checkLatticeSwapDoc(t, simulatedDoc(t, sc), east)
+}
+
+// checkLatticeSwapDoc is checkLatticeSwap on the document d built from the
+// survey's fits.
+func checkLatticeSwapDoc(t *testing.T, d *Document, east float64) {
+	t.Helper()
 	if d.Route == nil {
 		t.Fatal("no route")
 	}
@@ -129,4 +136,99 @@ func checkLatticeSwap(t *testing.T, seed int64, east float64) {
 	if rises != 1 {
 		t.Errorf("%d changes of current on conductor 1, want the one rise of 18 A", rises)
 	}
+}
+
+// TestSwapCloseCablesAnyDatum: the Lattice Drove survey with cable B 1.5 m
+// east of A (1.3 and 1.6 m below the sensors 0.3 m up), its fits made with
+// depths reported below the ground (ReferenceZ 0), below ReferenceZ 0.3
+// (the sensors' height, as --sensor-height 0.3 gives) and below the mean
+// sensor height (no datum, locate's default). A datum only says where depths
+// are counted from: the readings, and so which lines they resolve, are the
+// same, and so must be conductor 1's track and the rise (checkLatticeSwap's
+// truth, Biot-Savart through the simulate package). The same-way split was
+// judged by the lines' spacing against the deeper one's reported depth: 1.53
+// m against 1.3 m below the ground parted the two cables, against 1.6 m below
+// the sensors split them at every traverse, so the split exchange was
+// refused and conductor 2 was said to end with no rise reported (fails
+// before the fix with no datum and with 0.3, at seeds 1 and 2).
+func TestSwapCloseCablesAnyDatum(t *testing.T) {
+	if testing.Short() {
+		t.Skip("fits 72 traverses")
+	}
+	sensors := 0.3
+	datums := []struct {
+		name string
+		ref  *float64
+	}{{"ground", new(0.0)}, {"sensors", &sensors}, {"mean sensor height", nil}}
+	for _, seed := range []int64{1, 2} {
+		sc, err := simulate.Parse([]byte(latticeDroveScenarioAt(seed, 1.5)), "lattice-drove")
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, dt := range datums {
+			t.Run(fmt.Sprintf("seed%d/%s", seed, dt.name), func(t *testing.T) {
+				checkLatticeSwapDoc(t, simulatedDocRef(t, sc, dt.ref), 1.5)
+			})
+		}
+	}
+}
+
+// TestCloseCablesSplitAnyDatum: Lattice Drove with cable B 0.8 m east of A,
+// where the fits take the two as one conductor split in two at nearly every
+// traverse and the route follows their sum (the split exchange refused:
+// splitsResolved). The sum rises by the 18 A joining B (the simulated
+// truth), once, within 3 sigma, and no cable is said to end, whatever the
+// datum the depths are reported from (0.8 m against 1.6 m below the
+// sensors: a split by either rule, so this passes before the fix too; it
+// guards the bound sameWayNearSpacing against being raised past it).
+func TestCloseCablesSplitAnyDatum(t *testing.T) {
+	if testing.Short() {
+		t.Skip("fits 36 traverses")
+	}
+	sc, err := simulate.Parse([]byte(latticeDroveScenarioAt(1, 0.8)), "lattice-drove")
+	if err != nil {
+		t.Fatal(err)
+	}
+	sensors := 0.3
+	for _, ref := range []*float64{new(0.0), &sensors, nil} {
+		d := simulatedDocRef(t, sc, ref)
+		rises := 0
+		for _, f := range d.Findings {
+			if strings.Contains(f.Message, "appears to end") {
+				t.Errorf("datum %v: a cable said to end (both run the whole survey): %s", ref, f.Message)
+			}
+			if f.Kind != "current-step" && f.Kind != "current-change" || f.Severity == SeverityInfo || f.Conductor > 1 || len(f.Values) == 0 {
+				continue
+			}
+			rises++
+			if v := f.Values[0]; math.Abs(v.Value-18) > 3*v.Sigma {
+				t.Errorf("datum %v: change %.4g ± %.2g A, beyond 3 sigma of the truth +18 A: %s", ref, v.Value, v.Sigma, f.Message)
+			}
+		}
+		if rises != 1 {
+			t.Errorf("datum %v: %d changes of current on conductor 1, want the one rise of 18 A", ref, rises)
+		}
+	}
+}
+
+// simulatedDocRef is simulatedDoc with depths reported below ref (nil: below
+// the mean sensor height, as locate does with no datum).
+func simulatedDocRef(t *testing.T, sc *simulate.Scenario, ref *float64) *Document {
+	t.Helper()
+	s, err := simulate.Simulate(sc)
+	if err != nil {
+		t.Fatal(err)
+	}
+	byKey, keys := groupProblems(s)
+	var fits []Fit
+	for _, k := range keys {
+		p := byKey[k]
+		res, err := inverse.FitLines(p, &inverse.Settings{ReferenceZ: ref})
+		fits = append(fits, Fit{Key: k, Problem: p, Result: res, Err: err, MeasuredNoise: secondDiffNoise(p.Fields)})
+	}
+	d, err := Build(Document{}, fits, &BuildSettings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	return d
 }
