@@ -618,7 +618,7 @@ func (f *fitter) summariseAsIs(c *candidate) (*summary, error) {
 				e.MomentSigma[k] = math.Max(sd(j), sd(j+q))
 			}
 		}
-		e.Notes = append(e.Notes, "point dipole: a magnetised (ferrous) object, not a current")
+		e.Notes = append(e.Notes, "a magnetised (ferrous) object, not a current (fitted as a point dipole)")
 		if pu {
 			e.Notes = append(e.Notes, "position not resolved by the data")
 		}

@@ -284,7 +284,7 @@ func heldDipole(pos [3]float64, coef []float64, sig func(int) float64, c, nr int
 	e := SourceEstimate{Kind: "dipole", Point: pos,
 		Depth:  zref - pos[2],
 		Offset: pos[0] - sv.centroid[0],
-		Notes:  []string{"point dipole: a magnetised (ferrous) object, not a current; position held: only the moment was fitted"},
+		Notes:  []string{"a magnetised (ferrous) object, not a current; position held: only its strength was fitted (a point dipole's moment)"},
 	}
 	for k := range 3 {
 		if nr == 1 {

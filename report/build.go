@@ -1001,7 +1001,7 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute boo
 	}
 	if f.Dipole && g.Problem == "" && f.object == nil {
 		// The caller's verdict, without a fitted object to show for it.
-		g.Problem = "a point dipole explains the readings better than a current"
+		g.Problem = "a magnetised object (a buried steel or iron item) explains the readings better than a current (fitted as a point dipole)"
 	}
 	if f.object != nil {
 		st.Object = f.object
@@ -1206,8 +1206,8 @@ func markPoorGroups(groups []Group, r *route.Route) {
 			}
 			for _, why := range reasons {
 				if g.ReferenceNoise > 0 {
-					why = strings.Replace(why, "chi-square per degree of freedom is ",
-						"chi-square per degree of freedom against the survey's reference noise of "+sig(g.ReferenceNoise)+" nT is ", 1)
+					why = strings.Replace(why, route.MisfitNoiseWords+",",
+						"times the survey's reference noise of "+sig(g.ReferenceNoise)+" nT,", 1)
 				}
 				if why != g.Problem && !strings.Contains(g.Problem, why) {
 					if g.Problem != "" {
@@ -1236,12 +1236,12 @@ func fewDOF(dof int) string {
 	if dof > 0 {
 		spread = fmt.Sprintf("is uncertain by about %.0f%% of itself", 100/math.Sqrt(2*float64(dof)))
 	}
-	return fmt.Sprintf("the fit leaves only %d %s, %s, and every sigma with it; take more readings across the conductor, or give the reading noise (--noise)", dof, fewDOFMark, spread)
+	return fmt.Sprintf("the fit has only %d %s, %s, and every sigma with it; take more readings across the conductor, or give the reading noise (--noise)", dof, fewDOFMark, spread)
 }
 
 // fewDOFMark is the part of fewDOF's text that marks a group's problem as
 // one (whyLeftOut).
-const fewDOFMark = "degrees of freedom: the reading noise, estimated from the residuals"
+const fewDOFMark = "more measured values than unknowns (degrees of freedom): the reading noise, estimated from the residuals"
 
 func ambiguity(cs []inverse.ModelScore) string {
 	var chosen *inverse.ModelScore

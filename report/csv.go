@@ -405,7 +405,7 @@ func (d *Document) leftOut(st *Station, conductor int) string {
 	case leftPastEnd:
 		return "past the conductor's end: the fit finds only the field beyond it (see problem and the finding that the conductor appears to end)"
 	case leftUnplaced:
-		return "too few readings to place the conductor: the fit leaves under 10 degrees of freedom, so the station takes no part in the route's line and chainage either (see problem, and the poor-fit finding, which compares its current with its neighbours')"
+		return "too few readings to place the conductor: the fit has fewer than 10 more measured values than unknowns (degrees of freedom), so the station takes no part in the route's line and chainage either (see problem, and the poor-fit finding, which compares its current with its neighbours')"
 	}
 	return "left out of the profile (see problem)"
 }

@@ -250,7 +250,7 @@ func newView(d *Document) (*view, error) {
 			vals = append(vals, valueText(x))
 		}
 		v.Findings = append(v.Findings, findingRow{
-			N: strconv.Itoa(i + 1), Severity: f.Severity, Kind: strings.ReplaceAll(f.Kind, "-", " "),
+			N: strconv.Itoa(i + 1), Severity: f.Severity, Kind: kindLabel(f.Kind),
 			Where: v.where(f), Message: f.Message, Values: strings.Join(vals, "; "),
 		})
 	}
@@ -451,6 +451,17 @@ func latLon(lat, lon float64, prec int) string {
 		ew = "W"
 	}
 	return fmt.Sprintf("lat %s° %s, lon %s° %s", fix(math.Abs(lat), prec), ns, fix(math.Abs(lon), prec), ew)
+}
+
+// kindLabel is a finding's kind as the crew report's findings table names
+// it: the kind with spaces for hyphens, and "magnetised object" for
+// dipole-anomaly (the kind findings.csv and results.json keep), a
+// magnetised object being fitted as a point dipole.
+func kindLabel(kind string) string {
+	if kind == string(route.KindDipole) {
+		return "magnetised object"
+	}
+	return strings.ReplaceAll(kind, "-", " ")
 }
 
 func (v *view) where(f Finding) string {
@@ -907,8 +918,12 @@ func (v *view) summarise() {
 			// start from one walk and the end from another (a 0.435 A
 			// fall along the route read as 0.299 A; found in review).
 			// On an AC route each end with its phase (endCurrent).
-			v.Headline = append(v.Headline, fmt.Sprintf("%s is %s and %s%s.",
-				what, endClause(d, r, &a, "chainage "), endClause(d, r, &b, ""), firstWalkClause(r)))
+			sentence := fmt.Sprintf("%s is %s and %s%s",
+				what, endClause(d, r, &a, "chainage "), endClause(d, r, &b, ""), firstWalkClause(r))
+			if strings.Contains(sentence, "∠") {
+				sentence += " (phase angles " + PhaseAngleWords + ")"
+			}
+			v.Headline = append(v.Headline, sentence+".")
 			// The shallowest station is taken from every used one (cover is
 			// a safety matter); the deepest from those whose fit is sound,
 			// when there are any: a bend's poor fit read 1.34 m where the

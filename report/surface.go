@@ -64,8 +64,8 @@ func surfaceFindings(fits []Fit, r *route.Route) {
 		if f.surfaceRefit {
 			kept = "the traverse stays in the current and cover profile, its conductors refitted with the disturbance's field taken out"
 		}
-		fd.Message = fmt.Sprintf("the field at %s holds a local disturbance at or above the ground, not a buried item: a point dipole explains it %s m above the ground, %.1f m from the conductor (information criterion lower by %.0f), most likely a steel object on the surface, a vehicle, or interference at the sensor (a radio, a loose connection, a phone near the logger); %s",
-			where, pm(-o.Depth, o.DepthSigma), o.Distance, o.Evidence, kept)
+		fd.Message = fmt.Sprintf("the field at %s holds a local disturbance at or above the ground, not a buried item: a small magnetised source %s m above the ground, %.1f m from the conductor, explains it, most likely a steel object on the surface, a vehicle, or interference at the sensor (a radio, a loose connection, a phone near the logger); %s (fitted as a point dipole; information criterion lower by %.0f)",
+			where, pm(-o.Depth, o.DepthSigma), o.Distance, kept, o.Evidence)
 		fd.Values = []route.Value{
 			{Name: "east", Value: o.Point[0], Sigma: o.PointSigma[0], Unit: "m"},
 			{Name: "north", Value: o.Point[1], Sigma: o.PointSigma[1], Unit: "m"},

@@ -125,7 +125,7 @@ footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rul
 <div class="wide"><table class="findings">
 <thead><tr><th>#</th><th>Severity</th><th>What</th><th>Where</th><th>Detail</th></tr></thead>
 <tbody>
-{{range .Findings}}<tr><td class="num">{{.N}}</td><td><span class="sev sev-{{.Severity}}">{{.Severity}}</span></td><td>{{.Kind}}</td><td class="where">{{.Where}}</td><td class="detail">{{.Message}}{{with .Values}}<div class="values">{{.}}</div>{{end}}{{with .Items}}<ul class="values">{{range .}}<li>{{.}}</li>{{end}}</ul>{{end}}</td></tr>
+{{range .Findings}}<tr><td class="num">{{.N}}</td><td><span class="sev sev-{{.Severity}}">{{.Severity}}</span></td><td>{{.Kind}}</td><td class="where">{{.Where}}</td><td class="detail">{{.Message}}{{with .Values}}<div class="values">({{.}})</div>{{end}}{{with .Items}}<ul class="values">{{range .}}<li>{{.}}</li>{{end}}</ul>{{end}}</td></tr>
 {{end}}</tbody>
 </table></div>
 {{end}}

@@ -127,6 +127,12 @@ func stationPhase(d *Document, s Station) string {
 	return " ∠" + pm(*s.Phase, *s.PhaseSigma) + "°"
 }
 
+// PhaseAngleWords says what an AC current's phase angle (∠) in a summary
+// or the terminal table is measured against, for a crew that would take
+// it for the supply's phase: the reference of results.json's phase_deg
+// (GeoPhaseReference) in plain words.
+const PhaseAngleWords = "in degrees against a reference timed from the log's clock, not the supply's phases: compare them between conductors and along the route"
+
 // trackPhaseClause words further conductor t's phase relative to
 // conductor 1 for its summary sentence (as results.json's
 // phase_from_conductor_1_deg gives it): ", its phase -120.0 ± 0.02° from

@@ -117,13 +117,13 @@ func noCurrentProblem(f *Fit, res *inverse.Result, s *inverse.SourceEstimate, ac
 	case !ok:
 		return head + " (too weak a signal to tell a conductor from none, or no conductor under this group), so its position and depth mean nothing"
 	case drop <= limit && along != "":
-		return head + fmt.Sprintf(", and a line lowers chi-square by only %.3g from the background alone, which noise can (up to %.3g at %d readings): no conductor crossing this group's readings is detected, though one too deep or weak for them may cross there%s; its position and depth mean nothing",
+		return head + fmt.Sprintf(", and a line fits the readings no better than noise alone could make it (chi-square lower by only %.3g than with the background alone; noise can lower it by up to %.3g at %d readings): no conductor crossing this group's readings is detected, though one too deep or weak for them may cross there%s; its position and depth mean nothing",
 			math.Max(drop, 0), limit, len(f.Problem.Points), along)
 	case drop > limit:
-		return head + fmt.Sprintf(", but a line lowers chi-square by %.3g from the background alone, more than noise does (%.3g at %d readings): the readings hold a field, of a conductor under this group too deep or weak for them to fix its current, position and depth (which mean nothing here; longer traverses or a stronger current would), or of one nearby (past a conductor's end, or beside the traverse)",
+		return head + fmt.Sprintf(", but a line fits the readings better than noise alone could make it (chi-square lower by %.3g than with the background alone; noise by up to %.3g at %d readings): the readings hold a field, of a conductor under this group too deep or weak for them to fix its current, position and depth (which mean nothing here; longer traverses or a stronger current would), or of one nearby (past a conductor's end, or beside the traverse)",
 			drop, limit, len(f.Problem.Points))
 	}
-	return head + fmt.Sprintf(", and a line lowers chi-square by only %.3g from the background alone, which noise can (up to %.3g at %d readings): no conductor is detected under this group, though one too deep or weak for these readings may lie there; its position and depth mean nothing",
+	return head + fmt.Sprintf(", and a line fits the readings no better than noise alone could make it (chi-square lower by only %.3g than with the background alone; noise can lower it by up to %.3g at %d readings): no conductor is detected under this group, though one too deep or weak for these readings may lie there; its position and depth mean nothing",
 		math.Max(drop, 0), limit, len(f.Problem.Points))
 }
 
@@ -352,6 +352,6 @@ func undetectedProblem(f *Fit, res *inverse.Result, ac bool) string {
 		return ""
 	}
 	s := &res.Sources[0]
-	return fmt.Sprintf("no current found: the line's current, %s A, is beyond %.3g sigma, but the line lowers chi-square by only %.3g from the background alone, which noise does at one place or another along %d readings (up to %.3g on 99.73%% of such surveys): no conductor is detected under this group, though one too deep or weak for these readings may lie there; its position and depth mean nothing",
-		PlusMinus(s.Current, s.CurrentSigma), currentK(ac), math.Max(drop, 0), len(f.Problem.Points), limit)
+	return fmt.Sprintf("no current found: the line's current, %s A, is beyond %.3g sigma, but the line fits the readings no better than noise alone makes one fit at one place or another along %d readings (chi-square lower by only %.3g than with the background alone, against up to %.3g from noise on 99.73%% of such surveys): no conductor is detected under this group, though one too deep or weak for these readings may lie there; its position and depth mean nothing",
+		PlusMinus(s.Current, s.CurrentSigma), currentK(ac), len(f.Problem.Points), math.Max(drop, 0), limit)
 }

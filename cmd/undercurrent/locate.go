@@ -2518,13 +2518,13 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 	depthCol := doc.DepthReference.Kind != report.DepthBelowGround
 	switch {
 	case !coverKnown:
-		fmt.Fprintf(w, "depths are %s; currents %s, one-sigma uncertainties\n", ref, map[bool]string{true: "RMS with phase", false: "DC"}[doc.Signal.Mode == report.SignalAC])
+		fmt.Fprintf(w, "depths are %s; currents %s, one-sigma uncertainties\n", ref, map[bool]string{true: "RMS with phase angle (∠, " + report.PhaseAngleWords + ")", false: "DC"}[doc.Signal.Mode == report.SignalAC])
 		fmt.Fprintln(w, report.NoCoverSentence)
 	case depthCol:
 		fmt.Fprintf(w, "cover is the depth below the ground: the depth %s less the sensors' %.2f m height above the ground; currents %s, one-sigma uncertainties\n",
-			ref, doc.DepthReference.SensorHeight, map[bool]string{true: "RMS with phase", false: "DC"}[doc.Signal.Mode == report.SignalAC])
+			ref, doc.DepthReference.SensorHeight, map[bool]string{true: "RMS with phase angle (∠, " + report.PhaseAngleWords + ")", false: "DC"}[doc.Signal.Mode == report.SignalAC])
 	default:
-		fmt.Fprintf(w, "cover is the depth %s; currents %s, one-sigma uncertainties\n", ref, map[bool]string{true: "RMS with phase", false: "DC"}[doc.Signal.Mode == report.SignalAC])
+		fmt.Fprintf(w, "cover is the depth %s; currents %s, one-sigma uncertainties\n", ref, map[bool]string{true: "RMS with phase angle (∠, " + report.PhaseAngleWords + ")", false: "DC"}[doc.Signal.Mode == report.SignalAC])
 	}
 	if robustGroups(doc) > 0 {
 		// The sigmas of Huber-weighted fits are large-sample ones (the

@@ -6,6 +6,12 @@ import (
 	"strings"
 )
 
+// MisfitNoiseWords follows the factor by which a poor fit's readings miss
+// the fitted conductors (the square root of the reduced chi-square: the
+// residuals' RMS in units of the noise). The report names the noise it is
+// measured against in its place (the survey's reference noise).
+const MisfitNoiseWords = "times the noise"
+
 // quality reports stations whose fit failed, is poor or ambiguous, and
 // stations better explained by a dipole. steps are the route's
 // current-step findings: a poor fit within a step's bracket names the
@@ -25,7 +31,7 @@ func quality(ps []Placed, set *Settings, steps []Finding) []Finding {
 		if p.DOF > 0 && maxChi > 0 && p.Chi2 > 0 {
 			if r := p.Chi2 / float64(p.DOF); r > maxChi {
 				chi = r
-				why = append(why, fmt.Sprintf("chi-square per degree of freedom is %.3g, over the limit of %.3g, so the model or the noise level does not match the readings", r, maxChi))
+				why = append(why, fmt.Sprintf("the readings miss the fitted conductors by %.3g %s, more than the %.3g times allowed, so the model or the noise level does not match the readings (reduced chi-square %.3g, limit %.3g)", math.Sqrt(r), MisfitNoiseWords, math.Sqrt(maxChi), r, maxChi))
 				vals = append(vals, Value{Name: "reduced chi-square", Value: r, Unit: ""})
 			}
 		}
@@ -49,8 +55,8 @@ func quality(ps []Placed, set *Settings, steps []Finding) []Finding {
 				From:     p.Chainage, To: p.Chainage,
 				Position: p.Point,
 				Keys:     []string{p.Key},
-				Message: fmt.Sprintf("fit at %s misses %.3g nT RMS of a %.0f nT signal (%.2g%%), more than the noise allows (chi-square per degree of freedom %.3g): the straight-line model is only approximate here (%s); the estimates hold to about that fraction, but their sigmas may be optimistic",
-					at(p, len(ps) == 1), p.RMS, p.Signal, 100*p.RMS/p.Signal, chi, orDefault(bend, orDefault(stepCause(p, steps), "a bend, a change of depth or a nearby object"))),
+				Message: fmt.Sprintf("fit at %s misses %.3g nT RMS of a %.0f nT signal (%.2g%%), %.3g %s: the straight-line model is only approximate here (%s); the estimates hold to about that fraction, but their sigmas may be optimistic (reduced chi-square %.3g)",
+					at(p, len(ps) == 1), p.RMS, p.Signal, 100*p.RMS/p.Signal, math.Sqrt(chi), MisfitNoiseWords, orDefault(bend, orDefault(stepCause(p, steps), "a bend, a change of depth or a nearby object")), chi),
 				Values: vals,
 			})
 			continue
@@ -213,7 +219,7 @@ func dipoleFinding(p *Placed, set *Settings, single bool) Finding {
 	f.Position = o.Point
 	f.From = ObjectChainage(p.Chainage, p.Point, p.Dir, o.Point)
 	f.To = f.From
-	f.Message = fmt.Sprintf("the field at %s is better explained by a magnetised object (a buried steel or iron item) than by a current: a point dipole %s, %.1f m from the conductor (information criterion lower by %.0f); it is left out of the current and cover profile",
+	f.Message = fmt.Sprintf("the field at %s is better explained by a magnetised object (a buried steel or iron item, for example a drum, a valve or a pipe fitting) than by a current: the object lies %s, %.1f m from the conductor; it is left out of the current and cover profile (fitted as a point dipole; information criterion lower by %.0f)",
 		at(p, single), set.depthText(o.Depth, o.DepthSigma), o.Distance, o.Evidence)
 	f.Values = []Value{
 		{Name: "east", Value: o.Point[0], Sigma: o.PointSigma[0], Unit: "m"},

@@ -438,7 +438,9 @@ func TestQualityFindings(t *testing.T) {
 		{"sound", func(s *Station) {}, nil, ""},
 		{"failed", func(s *Station) { s.OK = false; s.Problem = "did not converge" }, []Kind{KindPoorFit}, "did not converge"},
 		{"ambiguous", func(s *Station) { s.Problem = "azimuth unidentifiable" }, []Kind{KindPoorFit}, "used with care"},
-		{"high chi2", func(s *Station) { s.Chi2, s.DOF = 500, 50 }, []Kind{KindPoorFit}, "chi-square per degree of freedom is 10"},
+		// The misfit in units of the noise is the square root of the
+		// reduced chi-square: sqrt(500/50) = 3.16, against sqrt(4) = 2.
+		{"high chi2", func(s *Station) { s.Chi2, s.DOF = 500, 50 }, []Kind{KindPoorFit}, "by 3.16 times the noise, more than the 2 times allowed"},
 		{"chi2 fine", func(s *Station) { s.Chi2, s.DOF = 55, 50 }, nil, ""},
 		// A misfit far above the noise but 0.5% of the signal is information (a bend
 		// the straight line cannot follow); at 5% of the signal it is a caution.

@@ -170,9 +170,9 @@ func TestPoorFitSaysEachThingOnce(t *testing.T) {
 		{"ambiguous", func(s *Station) { s.Problem = "2 and 3 conductors fit about as well (BIC within 2)" },
 			"fit at T12 (chainage 240.0 m) is poor or ambiguous: 2 and 3 conductors fit about as well (BIC within 2); its estimates are used with care"},
 		{"chi-square", func(s *Station) { s.Chi2, s.DOF = 500, 50 },
-			"fit at T12 (chainage 240.0 m) is poor: chi-square per degree of freedom is 10, over the limit of 4, so the model or the noise level does not match the readings; its estimates are used with care"},
+			"fit at T12 (chainage 240.0 m) is poor: the readings miss the fitted conductors by 3.16 times the noise, more than the 2 times allowed, so the model or the noise level does not match the readings (reduced chi-square 10, limit 4); its estimates are used with care"},
 		{"failed and chi-square", func(s *Station) { s.OK = false; s.Problem = "the fit failed: stalled"; s.Chi2, s.DOF = 500, 50 },
-			"fit at T12 (chainage 240.0 m) failed: stalled; chi-square per degree of freedom is 10, over the limit of 4, so the model or the noise level does not match the readings; it is left out of the current and cover profile"},
+			"fit at T12 (chainage 240.0 m) failed: stalled; the readings miss the fitted conductors by 3.16 times the noise, more than the 2 times allowed, so the model or the noise level does not match the readings (reduced chi-square 10, limit 4); it is left out of the current and cover profile"},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
