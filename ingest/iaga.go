@@ -245,7 +245,7 @@ func newIAGAReader(name string, rd io.Reader, cfg *config) (*iagaReader, error) 
 	if variation && decbasLine > 0 && !cfg.keepBaseline {
 		v, err := strconv.ParseFloat(decbasText, 64)
 		if err != nil || !(v >= 0 && v <= 216000) {
-			return nil, lineErr(name, decbasLine, "DECBAS", decbasText, "IAGA-2002 DECBAS %s is not a baseline declination in tenths of minutes of arc (0 to 216000); to read the data in the observatory's baseline frame instead, keep that frame (--iaga-baseline-frame; ingest.WithIAGABaselineFrame)", quoteText(decbasText))
+			return nil, lineErr(name, decbasLine, "DECBAS", decbasText, "IAGA-2002 DECBAS %s is not a baseline declination in tenths of minutes of arc (0 to 216000); to read the data in the observatory's baseline frame instead, keep that frame (the option WithIAGABaselineFrame(true), on the command line --iaga-baseline-frame)", quoteText(decbasText))
 		}
 		r.baseline = v / 600 * math.Pi / 180
 		meta[MetaPrefix+"horizontal_frame"] = IAGAGeographic
@@ -305,7 +305,7 @@ func newIAGAReader(name string, rd io.Reader, cfg *config) (*iagaReader, error) 
 		if t := strings.TrimSpace(meta[MetaPrefix+"data_type"]); t != "" {
 			what = strings.ToLower(t) + " data"
 		}
-		pl.warn("%s: IAGA-2002 %s in %s: east and north are read as E and H, the observatory's own horizontal axes, not geographic east and north (which IAGA-2002 gives as Y and X); only variation data are turned to geographic north, by the header's \"# DECBAS\" line; keeping the observatory's frame (--iaga-baseline-frame; ingest.WithIAGABaselineFrame) reads them so without this warning", name, what, read)
+		pl.warn("%s: IAGA-2002 %s in %s: east and north are read as E and H, the observatory's own horizontal axes, not geographic east and north (which IAGA-2002 gives as Y and X); only variation data are turned to geographic north, by the header's \"# DECBAS\" line; keeping the observatory's frame (on the command line --iaga-baseline-frame) reads them so without this warning", name, what, read)
 	}
 	r.bsin, r.bcos = math.Sincos(r.baseline)
 	return r, nil

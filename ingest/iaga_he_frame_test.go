@@ -33,6 +33,11 @@ func TestIAGAHENotGeographicReal(t *testing.T) {
 	if !hasWarning(in.Warnings, "adjusted data in H E"+heWarning) {
 		t.Errorf("warnings %q, want one saying adjusted data in H E are not geographic", in.Warnings)
 	}
+	// inspect prints this warning: it names the flag, not the Go package
+	// (found in review: "(--iaga-baseline-frame; ingest.WithIAGABaselineFrame)").
+	if w := strings.Join(in.Warnings, "\n"); !strings.Contains(w, "on the command line --iaga-baseline-frame") || strings.Contains(w, "ingest.With") {
+		t.Errorf("warnings %q: want the flag named, not the Go package", w)
+	}
 	if in.Meta["horizontal_frame"] != IAGAHENotTurned {
 		t.Errorf("horizontal_frame %q, want %q", in.Meta["horizontal_frame"], IAGAHENotTurned)
 	}

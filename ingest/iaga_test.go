@@ -308,6 +308,11 @@ func TestIAGABaselineRules(t *testing.T) {
 		p := writeFile(t, "hfn.sec", head("variation", bad)+cols+row)
 		_, err := ReadSamples(p)
 		wantErr(t, err, `hfn.sec:4: column DECBAS: IAGA-2002 DECBAS "`+bad+`" is not a baseline declination`)
+		// The refusal names the option as the other refusals do, and
+		// the flag, not the Go package (found in review).
+		if msg := err.Error(); !strings.Contains(msg, "on the command line --iaga-baseline-frame") || strings.Contains(msg, "ingest.With") {
+			t.Errorf("DECBAS %q: error %q: want the flag named, not the Go package", bad, msg)
+		}
 		if _, err := ReadSamples(p, WithIAGABaselineFrame(true)); err != nil {
 			t.Errorf("DECBAS %q with the baseline frame kept: %v", bad, err)
 		}

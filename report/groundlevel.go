@@ -361,9 +361,19 @@ func groupList(keys []string) string {
 // fine, as on a mast or a boom, or a log whose up is not from the ground:
 // they draw only a note asking whether the level is the ground, and set no
 // fit aside (a level simply mistyped keeps its own message per group).
+//
+// levelAtSensors, m: every group's mean sensor height within it of the
+// level says the level is the sensors' own height, not the ground's (a
+// carried or cart sensor never runs at ground level; the lowest sensors in
+// testdata/scenarios stand 0.25 m up). On a latitude/longitude/height
+// log --reference-z 0 is the origin's height, by default the first
+// reading's: the walk-through survey read so gave 1.6503 ± 0.0025 m of
+// least cover for 1.40, 0.25 m (the sensor height) too much, with no word
+// (found in review).
 const (
-	levelFlat = 0.5
-	levelHigh = 2.5
+	levelFlat      = 0.5
+	levelHigh      = 2.5
+	levelAtSensors = 0.05
 )
 
 // referenceLevelWarnings checks a --reference-z level (ReferenceZ of the
@@ -425,6 +435,26 @@ func referenceLevelWarnings(fits []Fit, origin *Origin) (warn []string, off map[
 			return ""
 		}
 		return " (" + k + ")"
+	}
+	if math.Abs(lo.h) <= levelAtSensors && math.Abs(hi.h) <= levelAtSensors {
+		cm := func(x float64) string {
+			if s := fmt.Sprintf("%.2f", x); s != "-0.00" {
+				return s
+			}
+			return "0.00"
+		}
+		span := cm(lo.h) + " m"
+		if cm(hi.h) != cm(lo.h) {
+			span = cm(lo.h) + " m to " + cm(hi.h) + " m"
+		}
+		at := ""
+		if origin != nil {
+			at = fmt.Sprintf(" On a latitude/longitude/height log, up is measured from the origin's height (%.2f m in the log's height datum; the first reading's unless --origin gives another), so up = %g m is height %.2f m there; give --reference-z as the ground's height in that datum minus %.2f m.",
+				origin.H, zref, origin.H+zref, origin.H)
+		}
+		warn = append(warn, fmt.Sprintf("the ground level given with --reference-z, up = %g m, is the sensors' own height: their mean height above it is %s on every traverse, and carried or cart-mounted sensors never run at ground level. Depths and cover are then measured from the sensors, not the ground, and the cover is too large by the sensors' height above the ground; give that height with --sensor-height instead, or the ground's own level with --reference-z.%s",
+			zref, span, at))
+		return warn, nil
 	}
 	if zref > zmax {
 		warn = append(warn, fmt.Sprintf("the ground level given with --reference-z, up = %g m, lies above every reading (the highest at up = %.2f m): carried sensors would be buried, so the depths and cover below it are not to be trusted.%s",

@@ -899,8 +899,12 @@ func (v *view) summarise() {
 			}
 			line += fmt.Sprintf(", fitted in %d of %d groups", ok, len(d.Groups))
 		}
-		if sound := soundGroups(d); len(used) > 0 && sound < ok {
-			line += fmt.Sprintf(", %d of them soundly (see the findings for the others)", sound)
+		if sound, obj := SoundGroups(d); len(used) > 0 && sound < ok {
+			line += fmt.Sprintf(", %d of them soundly (", sound)
+			if obj > 0 {
+				line += fmt.Sprintf("%d left out as holding a magnetised object; ", obj)
+			}
+			line += "see the findings for the others)"
 		}
 		v.Headline = append(v.Headline, line+".")
 		if z := ChainageZero(d); z != "" {
@@ -1574,15 +1578,36 @@ func numDecimals(a float64) int {
 	return 1 - int(math.Floor(math.Log10(a)))
 }
 
-// soundGroups counts the groups whose fit converged with no problem.
-func soundGroups(d *Document) int {
-	n := 0
-	for _, g := range d.Groups {
-		if g.OK && g.Problem == "" {
-			n++
+// SoundGroups counts the groups whose fit is sound: converged, with no
+// problem of its own, not called poor by a poor-fit caution or warning of
+// the route (a misfit far above the noise), and not left out of the
+// current and cover profile as a magnetised object (a point dipole
+// source); objects counts the groups otherwise sound left out so. The
+// report's headline and the terminal summaries count alike: the demo's
+// terminal said "28 of 31 traverses fitted soundly (1 left out as holding
+// a magnetised object)" and its report "31 of 31 groups, 29 of them
+// soundly", counting neither the object nor the poor-fit findings (found
+// in review).
+func SoundGroups(d *Document) (sound, objects int) {
+	poor := map[string]bool{}
+	for _, f := range d.Findings {
+		if f.Kind == string(route.KindPoorFit) && f.Severity != string(route.SeverityInfo) {
+			for _, k := range f.Groups {
+				poor[k] = true
+			}
 		}
 	}
-	return n
+	for _, g := range d.Groups {
+		if !g.OK || g.Problem != "" || poor[g.Key] {
+			continue
+		}
+		if slices.ContainsFunc(g.Sources, func(s Source) bool { return s.Kind == KindDipole }) {
+			objects++
+		} else {
+			sound++
+		}
+	}
+	return sound, objects
 }
 
 // pct writes part as a percentage of whole, to two significant digits.

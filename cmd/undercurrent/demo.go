@@ -13,7 +13,6 @@ import (
 	"github.com/spf13/pflag"
 
 	"undercurrent/ingest"
-	"undercurrent/inverse/route"
 	"undercurrent/inverse/simulate"
 	"undercurrent/report"
 )
@@ -188,38 +187,14 @@ func objectGroups(doc *report.Document) int {
 }
 
 // groupCounts counts the sound groups, the groups otherwise sound left out
-// as magnetised objects, and the readings.
+// as magnetised objects (report.SoundGroups, as the HTML report counts
+// them), and the readings.
 func groupCounts(doc *report.Document) (sound, objects, readings int) {
-	poor := map[string]bool{}
-	for _, f := range doc.Findings {
-		if f.Kind == string(route.KindPoorFit) && f.Severity != string(route.SeverityInfo) {
-			for _, k := range f.Groups {
-				poor[k] = true
-			}
-		}
-	}
 	for _, g := range doc.Groups {
 		readings += g.Points
-		if g.OK && g.Problem == "" && !poor[g.Key] {
-			if holdsObject(&g) {
-				objects++
-			} else {
-				sound++
-			}
-		}
 	}
+	sound, objects = report.SoundGroups(doc)
 	return sound, objects, readings
-}
-
-// holdsObject reports whether group g's fit holds a magnetised object
-// (a point dipole source), which leaves it out of the profile.
-func holdsObject(g *report.Group) bool {
-	for _, s := range g.Sources {
-		if s.Kind == report.KindDipole {
-			return true
-		}
-	}
-	return false
 }
 
 // shellQuote quotes s for a POSIX shell when it holds anything but plain

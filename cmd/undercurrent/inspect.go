@@ -50,13 +50,13 @@ times).
 In the examples, survey.csv is the survey log of the walk-through in
 README.md, and testdata/examples/kestrel-moor-logger.csv an invented
 logger's traverse with its field in uT under its own column names;
-../shared/data/iaga2002 holds observatory minute files (IAGA-2002, open
-data kept beside the repository, not in it): use any IAGA-2002 file.
+testdata/examples/harrow-fen-base.min is an invented base station's
+minute record in IAGA-2002 (an observatory's own file reads the same).
 
 Examples:
   undercurrent inspect survey.csv
   undercurrent inspect --column bx=fluxE,by=fluxN,bz=fluxU --unit bx=uT,by=uT,bz=uT testdata/examples/kestrel-moor-logger.csv
-  undercurrent inspect --json ../shared/data/iaga2002/bou20141101vmin.min`,
+  undercurrent inspect --json testdata/examples/harrow-fen-base.min`,
 		setFlags: func(fs *pflag.FlagSet) {
 			rf.add(fs)
 			fs.BoolVar(&asJSON, "json", false, "print machine-readable JSON")
