@@ -14,6 +14,8 @@ import (
 // first member, "cautions", is Cautions, the safety cautions every crew
 // report carries, so that a program or person reading results.json alone
 // has them too; ReadJSON ignores it (they are the writer's, not the fit's).
+// The document is written in this version's layout with schema_version
+// SchemaVersion, also when d was read from an earlier version.
 func WriteJSON(w io.Writer, d *Document) error {
 	if err := d.Validate(); err != nil {
 		return err
@@ -123,6 +125,8 @@ func lineCol(data []byte, off int64) (line, col int) {
 // rather than nil, so that they are written as [] rather than null.
 func (d *Document) normalized() *Document {
 	c := *d
+	// The layout written is this version's, whatever version was read.
+	c.SchemaVersion = SchemaVersion
 	if c.Inputs == nil {
 		c.Inputs = []Input{}
 	}

@@ -3,6 +3,7 @@ package report
 import (
 	"bytes"
 	"encoding/json"
+	"fmt"
 	"math"
 	"strings"
 	"testing"
@@ -109,6 +110,16 @@ func TestObjectSourceJSONFields(t *testing.T) {
 		}
 		if n != 1 {
 			t.Errorf("%s: %d objects read back", name, n)
+		}
+		// Written again, it is in this version's layout and says so (a
+		// version 1 document rewritten had kept schema_version 1 over
+		// version 2's names).
+		var again bytes.Buffer
+		if err := WriteJSON(&again, back); err != nil {
+			t.Fatalf("%s: writing again: %v", name, err)
+		}
+		if want := fmt.Sprintf(`"schema_version": %d,`, SchemaVersion); !strings.Contains(again.String(), want) || strings.Contains(again.String(), "moment_am2") {
+			t.Errorf("%s: written again without %s, or with moment_am2", name, want)
 		}
 	}
 
