@@ -339,7 +339,14 @@ func (q *rangeQuery) seek(ctx context.Context, lo, hi uint64, in func(*jetstream
 }
 
 // key names an alarm within its window's revision: window, kind and
-// subject, as its message id does.
+// subject, as its message id does, and whether it is a cleared record,
+// so that a condition raised and cleared within one window (an
+// out-of-order run ended before the next window was published) lists
+// both.
 func (a Alarm) key() string {
-	return strconv.FormatInt(a.Window, 10) + "/" + a.Kind + "/" + a.Subject
+	k := strconv.FormatInt(a.Window, 10) + "/" + a.Kind + "/" + a.Subject
+	if a.Cleared {
+		k += "/cleared"
+	}
+	return k
 }

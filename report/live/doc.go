@@ -49,10 +49,11 @@
 // dead letters, if its windows were closed meanwhile). A log replayed
 // faster than real time is not at a live pace, and one replayed slower
 // stays in line with its pace across a gap; a batch marked as replayed
-// (broker.HeaderReplay) is never held so. Two or more batches of a
-// sensor refused as out-of-order over Grace plus a window of the
-// broker's clock, with none of its batches filed between, raise an
-// out-of-order alarm, once, cleared by its next batch filed. A message is
+// (broker.HeaderReplay) is never held so. Two or more unmarked batches
+// of a sensor refused as out-of-order over Grace plus a window of the
+// broker's clock, holding that much of its data, with none of its
+// batches filed between, raise an out-of-order alarm, once, cleared by
+// its next batch filed. A message is
 // dead-lettered once: the checkpoint counts it as examined as soon as its
 // dead letter is stored (and is written then if no window is open), and
 // a later holder that reads it again to rebuild an open window counts it

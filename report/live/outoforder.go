@@ -20,6 +20,10 @@ type outOfOrderRun struct {
 	// Behind is how far the run's last batch ended before the sensor's
 	// last sample, s.
 	Behind float64 `json:"behind"`
+	// DataFrom and DataTo are the earliest start and latest end of the
+	// refused batches' samples (sensor clock, s): the data the run holds.
+	DataFrom float64 `json:"data_from,omitempty"`
+	DataTo   float64 `json:"data_to,omitempty"`
 	// Alarmed says the out-of-order alarm was raised for the run; Since
 	// is the start of the window it was placed in.
 	Alarmed bool    `json:"alarmed,omitempty"`
@@ -30,31 +34,36 @@ type outOfOrderRun struct {
 func (r *outOfOrderRun) span() float64 { return r.To - r.From }
 
 // note adds a refused batch (sequence seq, stored at stored, Unix s,
-// ending behind s before the sensor's last sample) to the run, and
-// reports whether the run has now become one to alarm: two batches or
-// more over margin (grace plus a window) of the broker's clock, as a
-// clock jump is confirmed by that much data. A single stray batch, or a
-// burst sent again at once (a gateway resending its buffer), does not
-// alarm; a sensor whose data is refused for longer does, once.
-func (r *outOfOrderRun) note(seq uint64, stored, behind, margin float64) bool {
+// samples from t0 to t1, ending behind s before the sensor's last sample)
+// to the run, and reports whether the run has now become one to alarm:
+// two batches or more over margin (grace plus a window) of the broker's
+// clock, holding margin of the sensor's data or more, as a clock jump is
+// confirmed by that much data. A single stray batch, a burst sent again
+// at once (a gateway resending its buffer), or one batch sent again now
+// and then (a link dropping before the gateway hears its batch was
+// stored) does not alarm; a sensor whose data is refused for longer does,
+// once.
+func (r *outOfOrderRun) note(seq uint64, stored, t0, t1, behind, margin float64) bool {
 	if r.Batches == 0 {
 		r.FirstSeq, r.From = seq, stored
+		r.DataFrom, r.DataTo = t0, t1
 	}
 	r.To = max(r.To, stored)
+	r.DataFrom, r.DataTo = min(r.DataFrom, t0), max(r.DataTo, t1)
 	r.Batches++
 	r.Behind = behind
-	return !r.Alarmed && r.Batches >= 2 && r.span() >= margin
+	return !r.Alarmed && r.Batches >= 2 && r.span() >= margin && r.DataTo-r.DataFrom >= margin
 }
 
 // noteOutOfOrder counts a batch of sensor (sequence seq, stored by the
-// broker at stored, ending at last) refused as out of order in the
+// broker at stored, samples from first to last) refused as out of order in the
 // sensor's run of them, and raises the out-of-order alarm, once per run,
 // when the run reaches outOfOrderRun.note's threshold. The alarm goes in
 // the window after the last published one (or the asset's earliest
 // unpublished one), as clock-jump does, so that the alarm history stays
 // in window order. Called only for a message no earlier holder examined
 // (the checkpoint's runs count those).
-func (w *assetWorker) noteOutOfOrder(sensor string, seq uint64, stored time.Time, last float64) error {
+func (w *assetWorker) noteOutOfOrder(sensor string, seq uint64, stored time.Time, first, last float64) error {
 	if w.ck.OutOfOrder == nil {
 		w.ck.OutOfOrder = map[string]*outOfOrderRun{}
 	}
@@ -65,7 +74,7 @@ func (w *assetWorker) noteOutOfOrder(sensor string, seq uint64, stored time.Time
 	}
 	water := w.asm.water[w.sens[sensor]]
 	margin := w.asm.aheadMargin()
-	if !r.note(seq, unixSeconds(stored), water-last, margin) {
+	if !r.note(seq, unixSeconds(stored), first, last, water-last, margin) {
 		return nil
 	}
 	win := w.eventWindow(water)

@@ -13,24 +13,35 @@ import (
 
 // The threshold of the out-of-order alarm (invented times): a single
 // refused batch, or a burst of them stored within a second (a gateway
-// resending its buffer), does not reach it; two or more over grace plus
-// a window (here 1.5 s) of the broker's clock do, once per run.
+// resending its buffer), does not reach it, nor does one batch sent again
+// now and then (the same 0.1 s of data stored twice minutes apart: a link
+// dropping before the gateway heard it was stored); two or more over grace
+// plus a window (here 1.5 s) of the broker's clock, holding that much of
+// the sensor's data, do, once per run.
 func TestOutOfOrderRunThreshold(t *testing.T) {
 	const margin = 1.5
 	var one outOfOrderRun
-	if one.note(7, 100, 2, margin) {
+	if one.note(7, 100, 50, 50.1, 2, margin) {
 		t.Error("a single refused batch reached the threshold")
 	}
 	var burst outOfOrderRun
 	for i := 0; i < 50; i++ {
-		if burst.note(uint64(i), 100+0.01*float64(i), 1, margin) {
+		t0 := 50 + 0.1*float64(i)
+		if burst.note(uint64(i), 100+0.01*float64(i), t0, t0+0.1, 1, margin) {
 			t.Fatalf("a burst of 50 batches stored within 0.5 s reached the threshold at batch %d", i+1)
+		}
+	}
+	var again outOfOrderRun
+	for i := 0; i < 3; i++ {
+		if again.note(uint64(i), 100+300*float64(i), 50, 50.1, 2, margin) {
+			t.Fatalf("one batch sent again every 5 minutes reached the threshold at sending %d", i+1)
 		}
 	}
 	var run outOfOrderRun
 	at := 0
 	for i := 0; i < 50; i++ {
-		if run.note(uint64(i), 100+0.1*float64(i), 10, margin) {
+		t0 := 50 + 0.1*float64(i)
+		if run.note(uint64(i), 100+0.1*float64(i), t0, t0+0.1, 10, margin) {
 			if at != 0 {
 				t.Fatalf("threshold reached again at batch %d (first at %d)", i+1, at)
 			}
@@ -38,7 +49,8 @@ func TestOutOfOrderRunThreshold(t *testing.T) {
 			run.Alarmed = true
 		}
 	}
-	// 0.1 s apart: the 16th batch is 1.5 s after the first.
+	// 0.1 s apart: the 16th batch is 1.5 s after the first, and the 15th
+	// ends 1.5 s of data after the first starts.
 	if at != 16 || run.Batches != 50 || math.Abs(run.span()-4.9) > 1e-9 {
 		t.Errorf("threshold reached at batch %d, run %+v; want at 16 of 50 over 4.9 s", at, run)
 	}
@@ -124,13 +136,16 @@ func TestOutOfOrderAlarmOncePerRun(t *testing.T) {
 }
 
 // undercurrent replay marks its batches (broker.HeaderReplay): the
-// service then never holds them for a jump from a live pace, and nothing
-// else changes. One batch per sensor dated 50 min ahead, then data at
-// the clock, as in TestClockJumpBatchGivenUpAssetGoesOn but marked: the
-// jump is processed as dated, as a gateway account can already force by
-// sending grace plus a window in line for every sensor, with no
-// clock-jump alarm, and the data after it is refused as out of order
-// with an out-of-order alarm for each sensor.
+// service then never holds them for a jump from a live pace, and raises
+// no out-of-order alarm for them (a replay run again sends what the
+// service already has). One batch per sensor dated 50 min ahead, then
+// data at the clock, as in TestClockJumpBatchGivenUpAssetGoesOn but
+// marked: the jump is processed as dated, as a gateway account can
+// already force by sending grace plus a window in line for every sensor,
+// with no clock-jump alarm, and the data after it is refused as out of
+// order (dead letters) with no alarm. Before marked batches were left
+// out of the runs, each sensor got an out-of-order alarm here, and a
+// replay run again one per sensor that nothing cleared.
 func TestReplayMarkedJumpNotHeld(t *testing.T) {
 	if testing.Short() {
 		t.Skip("runs a broker and the service")
@@ -153,9 +168,6 @@ func TestReplayMarkedJumpNotHeld(t *testing.T) {
 	waitFor(t, 30*time.Second, "the batches after the jump refused", func() bool {
 		return metricValue(t, met.deadLetters.WithLabelValues(broker.ReasonOutOfOrder)) >= 90
 	})
-	waitFor(t, 30*time.Second, "an out-of-order alarm for each sensor", func() bool {
-		return len(h.allAlarms(broker.AlarmPrefix+".fenwick-lane.>", func(a Alarm) bool { return a.Kind == AlarmOutOfOrder })) >= 3
-	})
 	r.stop(t)
 	for _, al := range h.allAlarms(broker.AlarmPrefix+".fenwick-lane.>", func(a Alarm) bool { return a.Kind == AlarmClockJump }) {
 		t.Errorf("clock-jump alarm raised for a marked replay: %s", al.Message)
@@ -163,11 +175,25 @@ func TestReplayMarkedJumpNotHeld(t *testing.T) {
 	if n := metricValue(t, met.deadLetters.WithLabelValues(broker.ReasonMalformed)); n != 0 {
 		t.Errorf("%v batches refused as malformed, want 0: the marked jump is not held", n)
 	}
-	got := map[string]int{}
 	for _, al := range h.allAlarms(broker.AlarmPrefix+".fenwick-lane.>", func(a Alarm) bool { return a.Kind == AlarmOutOfOrder }) {
-		got[al.Subject]++
+		t.Errorf("out-of-order alarm raised for marked batches: %s", al.Message)
 	}
-	if len(got) != 3 || got["s0"] != 1 || got["s1"] != 1 || got["s2"] != 1 {
-		t.Errorf("out-of-order alarms by sensor %v, want one for each of s0, s1, s2", got)
+}
+
+// An alarm raised and cleared within one window (an out-of-order run
+// ended before the next window was published) is two records in the
+// alarms listing, not one: the listing keeps the last stored alarm of
+// each key, and a cleared record had the onset's key (found in review: 5
+// of 5 onsets hidden behind their cleared records).
+func TestAlarmKeyTellsClearedApart(t *testing.T) {
+	on := Alarm{Window: 7, Kind: AlarmOutOfOrder, Subject: "s0"}
+	cl := on
+	cl.Cleared = true
+	if on.key() == cl.key() {
+		t.Errorf("onset and cleared record share the key %q", on.key())
+	}
+	again := on
+	if on.key() != again.key() {
+		t.Error("one alarm's key differs from itself")
 	}
 }

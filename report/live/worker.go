@@ -551,7 +551,8 @@ func (w *assetWorker) handle(m jetstream.Msg) error {
 		}
 	}
 	t0 = time.Now()
-	w.asm.clock, w.asm.marked = md.Timestamp, m.Headers().Get(broker.HeaderReplay) == "1"
+	marked := m.Headers().Get(broker.HeaderReplay) == "1"
+	w.asm.clock, w.asm.marked = md.Timestamp, marked
 	res, _ := w.asm.addMsg(si, seq, b, t0, subj, data)
 	w.asm.clock, w.asm.marked = time.Time{}, false
 	met.stage.WithLabelValues("assemble").Observe(time.Since(t0).Seconds())
@@ -576,8 +577,10 @@ func (w *assetWorker) handle(m jetstream.Msg) error {
 		}
 		return w.closeReady(t0, 0)
 	case outOfOrder:
-		if !replayed {
-			if err := w.noteOutOfOrder(sensor, seq, md.Timestamp, b.Time[b.Len()-1]); err != nil {
+		// A batch `undercurrent replay` marked is not counted: a replay run
+		// again sends what the service already has, and loses nothing.
+		if !replayed && !marked {
+			if err := w.noteOutOfOrder(sensor, seq, md.Timestamp, b.Time[0], b.Time[b.Len()-1]); err != nil {
 				return err
 			}
 		}
