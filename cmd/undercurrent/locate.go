@@ -780,10 +780,18 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			}
 		}
 		// A coil log's voltages are not checked against the Earth's field.
-		s, warns, err := o.read.readLog(ctx, path, opts, !o.coil.on())
+		s, rows, warns, err := o.read.readLogRows(ctx, path, opts, !o.coil.on())
 		sv.warnings = append(sv.warnings, warns...)
 		if err != nil {
 			return nil, err
+		}
+		if sv.ac {
+			// Stale stamps put at their place in the sampling
+			// (stuckstamps.go).
+			var w string
+			if s, w = retimeStuckStamps(path, s, rows, &o.read); w != "" {
+				sv.warnings = append(sv.warnings, w)
+			}
 		}
 		if base != nil {
 			if err := checkBaseNotSurvey(o.base, base, path, s); err != nil {
