@@ -878,6 +878,8 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch, plain bool) 
 					}
 					if _, err := unitScale(kindOf(u.c), string(t)); err == nil && len(t) > 0 {
 						what += " (a row of units under the header? make it a comment line, starting with the comment prefix, or delete it)"
+					} else if u.c != cTime {
+						what += markerHint(t)
 					}
 					return lineErr(r.name, fieldLine(ln, fields[u.src], line), pl.header[u.src], string(t), "%s %s", quoteText(string(t)), what)
 				} else {
