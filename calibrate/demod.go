@@ -505,6 +505,9 @@ func DemodulateColumns(c *Columns, set *DemodSettings) (*DemodResult, error) {
 	runs := c.runs()
 	dt := c.sampleInterval(runs)
 	if !(dt > 0) {
+		if why := ingest.OneTime(c.Time); why != "" {
+			return nil, errors.New("calibrate: demodulate: " + why)
+		}
 		return nil, errors.New("calibrate: demodulate: fewer than two samples in time order")
 	}
 	runs = c.splitGaps(runs, MaxStepIntervals*dt)

@@ -117,3 +117,18 @@ func stuck4(t []float64) []float64 {
 	}
 	return out
 }
+
+// TestDemodulateOneTime: a log whose every row carries one time (a time
+// column a spreadsheet saved to six significant figures) was refused with
+// "fewer than two samples in time order", which names no cause; the error
+// now says every row has the same time and asks whether it was rounded.
+func TestDemodulateOneTime(t *testing.T) {
+	c := acLog(nil, 500, 1000, 1.7e9, 50, testPhasors, 0)
+	for i := range c.Time {
+		c.Time[i] = 1.77841e9
+	}
+	_, err := DemodulateColumns(c, &DemodSettings{Freq: 50})
+	if err == nil || !strings.Contains(err.Error(), "every one of the 1000 rows has the same time") || !strings.Contains(err.Error(), "rounded") {
+		t.Errorf("every row at one time: %v, want the cause named", err)
+	}
+}

@@ -413,6 +413,10 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 		if err := p.unreadUnitColumn(missing, taken, headerLine); err != nil {
 			return nil, err
 		}
+		if headerLine > 0 && format == string(FormatCSV) && numbersOnly(header) {
+			return nil, fileErr(file, nil, "no column for %s: the header line holds numbers (%s), so the file seems to have no header line; give the column names, in the file's order, with a header option (on the command line --header time,x,y,z,bx,by,bz, say)",
+				strings.Join(missing, ", "), columnList(header[:min(len(header), 4)])+map[bool]string{true: ", ...", false: ""}[len(header) > 4])
+		}
 		tried := "none"
 		if len(cfg.mappingText) > 0 {
 			tried = strings.Join(cfg.mappingText, ", ")
@@ -1133,3 +1137,16 @@ func secondsText(v float64) string {
 }
 
 var nan = math.NaN()
+
+// numbersOnly reports whether most names of a header (at least two, and
+// more than half; a group name may be text) read as numbers: a data row
+// taken for the header.
+func numbersOnly(header []string) bool {
+	n := 0
+	for _, h := range header {
+		if _, ok := parseNumber([]byte(strings.TrimSpace(h))); ok {
+			n++
+		}
+	}
+	return n >= 2 && 2*n > len(header)
+}

@@ -785,6 +785,11 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		if err != nil {
 			return nil, err
 		}
+		if w := ingest.OneTime(s.Time); w != "" && !sv.ac {
+			// A time column rounded to one value (an AC log is refused
+			// with the same words by the demodulation).
+			sv.warnings = append(sv.warnings, path+": "+w+"; the readings were fitted, but nothing that takes their times (a base station's correction, the drift, the order of the walks) can be trusted")
+		}
 		if sv.ac {
 			// Stale stamps put at their place in the sampling
 			// (stuckstamps.go).
