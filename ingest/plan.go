@@ -401,6 +401,15 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 		}
 	}
 
+	// A log written from one read without time (Samples.NoTime) carries
+	// MetaTime "absent" and a time column of NaN: it has no time.
+	if _, mapped := cfg.mapping[cTime]; meta[MetaTime] == "absent" && p.src[cTime] >= 0 && !mapped {
+		if !cfg.timeOptional {
+			return nil, fileErr(file, nil, "no time: its metadata (%s: absent) says it was written from a log without time, and its time column holds no times; it can be read only where no time is needed (calibrate; in the library, with WithTimeOptional)", MetaTime)
+		}
+		p.src[cTime] = -1
+	}
+
 	// Required columns.
 	var missing []string
 	p.noTime = p.src[cTime] < 0 && cfg.timeOptional
