@@ -475,6 +475,7 @@ func DemodulateColumns(c *Columns, set *DemodSettings) (*DemodResult, error) {
 	if err := c.check(); err != nil {
 		return nil, err
 	}
+	c, stuck := stuckColumns(c) // stuckstamps.go
 	c, quantum := retimeColumns(c)
 	if len(ds.LeftOut) > 0 {
 		cc := *c
@@ -504,6 +505,9 @@ func DemodulateColumns(c *Columns, set *DemodSettings) (*DemodResult, error) {
 	runs := c.runs()
 	dt := c.sampleInterval(runs)
 	if !(dt > 0) {
+		if why := ingest.OneTime(c.Time); why != "" {
+			return nil, errors.New("calibrate: demodulate: " + why)
+		}
 		return nil, errors.New("calibrate: demodulate: fewer than two samples in time order")
 	}
 	runs = c.splitGaps(runs, MaxStepIntervals*dt)
@@ -523,6 +527,9 @@ func DemodulateColumns(c *Columns, set *DemodSettings) (*DemodResult, error) {
 	}
 	res.Freq = ds.Freq
 	res.Nuisance = append([]float64(nil), ds.Nuisance...)
+	if len(stuck) > 0 {
+		res.Warnings = append(res.Warnings, StuckWarning(len(stuck), fmt.Sprintf("row %d, counting from 1", stuck[0]+1)))
+	}
 	if quantum != nil {
 		res.Quantum = quantum
 		res.Warnings = append(res.Warnings, quantumWarning(quantum, ds.Freq))

@@ -806,7 +806,7 @@ func (r *arrowReader) floats(dst []float64, arr arrow.Array, c int) ([]float64, 
 				if c == cTime {
 					return nil, rowErr(r.name, r.batch, i, col, text, "%s is not a number or an RFC 3339 time%s", quoteText(text), timeHint(t))
 				}
-				return nil, rowErr(r.name, r.batch, i, col, text, "%s is not a number", quoteText(text))
+				return nil, rowErr(r.name, r.batch, i, col, text, "%s is not a number%s", quoteText(text), markerHint(t))
 			}
 			if !ok {
 				v = math.NaN()

@@ -33,27 +33,31 @@ const maxLineBytes = 16 << 20
 // long row on the line where its record starts, and an unterminated quote
 // on the line of the opening quote.
 type csvReader struct {
-	name     string
-	closer   io.Closer
-	br       *bufio.Reader
-	pl       *plan
-	cfg      *config
-	delim    byte
-	ws       bool
-	ncols    int
-	used     []usedCol
-	ops      []int // per source column: canonical index, opSkip or opGroup
-	opScale  []float64
-	fast     bool // lines may take fastLine
-	decComma bool // numbers write their decimals with a comma (WithDecimalComma)
-	quotes   bool // quoted fields may hold newlines (not in blank-separated files)
-	comment  []byte
-	pending  chan chan csvResult
-	jobs     chan csvJob
-	done     chan struct{}
-	wg       sync.WaitGroup
-	stopped  bool
-	ended    bool // Next reached the end of the input (see Release)
+	name   string
+	closer io.Closer
+	br     *bufio.Reader
+	pl     *plan
+	cfg    *config
+	delim  byte
+	ws     bool
+	ncols  int
+	// headerText is the header line, trimmed (nil with WithHeader), on
+	// line headerAt: a data line that repeats it is two logs joined.
+	headerText []byte
+	headerAt   int
+	used       []usedCol
+	ops        []int // per source column: canonical index, opSkip or opGroup
+	opScale    []float64
+	fast       bool // lines may take fastLine
+	decComma   bool // numbers write their decimals with a comma (WithDecimalComma)
+	quotes     bool // quoted fields may hold newlines (not in blank-separated files)
+	comment    []byte
+	pending    chan chan csvResult
+	jobs       chan csvJob
+	done       chan struct{}
+	wg         sync.WaitGroup
+	stopped    bool
+	ended      bool // Next reached the end of the input (see Release)
 	// nulAt is the line of a run of NUL bytes without a line end that
 	// split dropped (0: none); written by split, read after it ends.
 	nulAt   int
@@ -197,6 +201,9 @@ func newCSVReader(name string, rd io.Reader, cfg *config) (*csvReader, error) {
 		return nil, r.openQuoteErr(raw, open, headerStart, rerr == io.EOF)
 	}
 	headerLine := bytes.TrimRight(raw, "\r\n")
+	if cfg.header == nil {
+		r.headerText, r.headerAt = bytes.TrimSpace(append([]byte(nil), headerLine...)), headerStart
+	}
 	if cfg.header != nil {
 		carry = append([]byte(nil), raw...)
 		lineNo = headerStart - 1 // the record is data, parsed again below
@@ -829,6 +836,9 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch, plain bool) 
 		}
 		fields = splitFields(ln, r.delim, r.ws, fields[:0])
 		if len(fields) != r.ncols {
+			if err := r.repeatedHeader(ln, line); err != nil {
+				return err
+			}
 			if !(len(fields) == r.ncols+1 && len(bytes.TrimSpace(fields[r.ncols])) == 0) {
 				what := "short row"
 				if len(fields) > r.ncols {
@@ -874,6 +884,9 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch, plain bool) 
 					}
 					v = math.NaN()
 				} else if !ok {
+					if err := r.repeatedHeader(ln, line); err != nil {
+						return err
+					}
 					what := "is not a number"
 					if u.c == cTime {
 						what = "is not a number or an RFC 3339 time" + timeHint(t)
@@ -894,6 +907,8 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch, plain bool) 
 					}
 					if _, err := unitScale(kindOf(u.c), string(t)); err == nil && len(t) > 0 {
 						what += " (a row of units under the header? make it a comment line, starting with the comment prefix, or delete it)"
+					} else if u.c != cTime {
+						what += markerHint(t)
 					}
 					return lineErr(r.name, fieldLine(ln, fields[u.src], line), pl.header[u.src], string(t), "%s %s", quoteText(string(t)), what)
 				} else {
@@ -907,6 +922,24 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch, plain bool) 
 		}
 		rb.line[rb.n] = line
 		rb.n++
+	}
+	return nil
+}
+
+// repeatedHeader returns the error for a line ln (on line) that repeats
+// the header line, or ends with it (a log without a last line end joined
+// on), as two logs joined end to end give; nil for other lines.
+func (r *csvReader) repeatedHeader(ln []byte, line int) error {
+	h := r.headerText
+	if len(h) == 0 {
+		return nil
+	}
+	t := bytes.TrimSpace(ln)
+	switch {
+	case bytes.Equal(t, h):
+		return lineErr(r.name, line, "", string(ln), "the header repeats here (it is line %d): two logs joined? Give each log as a file of its own, or delete the repeated header line", r.headerAt)
+	case bytes.HasSuffix(t, h):
+		return lineErr(r.name, line, "", string(ln), "the line ends with the header (line %d) run on: two logs joined, the first without a line end after its last row? Give each log as a file of its own, or split the line", r.headerAt)
 	}
 	return nil
 }

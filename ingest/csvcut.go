@@ -118,7 +118,8 @@ func shortValue(last []byte, refs [][]byte, group bool) string {
 	s, ok := shapeOf(last)
 	switch {
 	case !ok:
-		if isMissingText(last) {
+		if isMissingText(last) && string(last) != "-" {
+			// A dash alone may be a number cut after its sign.
 			return ""
 		}
 		return "stops short of a number"

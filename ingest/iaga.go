@@ -139,6 +139,11 @@ func newIAGAReader(name string, rd io.Reader, cfg *config) (*iagaReader, error) 
 		}
 		r.line++
 		ln := strings.TrimRight(string(raw), "\r\n")
+		if r.line == 1 {
+			// A UTF-8 byte order mark (a file saved by Windows Notepad)
+			// would shift the fixed-width labels.
+			ln = strings.TrimPrefix(ln, string(utf8BOM))
+		}
 		t := strings.TrimSpace(ln)
 		switch {
 		case t == "":
@@ -451,9 +456,10 @@ func valueDecimals(fields [][]byte) int {
 }
 
 // iagaFormatLine reports whether a line is the first line of an IAGA-2002
-// header, " Format                 IAGA-2002 ... |".
+// header, " Format                 IAGA-2002 ... |" (after a UTF-8 byte
+// order mark, in a file saved with one joined on).
 func iagaFormatLine(ln []byte) bool {
-	t := bytes.TrimSpace(ln)
+	t := bytes.TrimSpace(bytes.TrimPrefix(ln, utf8BOM))
 	return bytes.HasPrefix(t, []byte("Format")) && bytes.Contains(bytes.ToUpper(t), []byte("IAGA-2002"))
 }
 

@@ -269,6 +269,10 @@ func Inspect(path string, opts ...Option) (*Inspection, error) {
 			ts.GapsAtLeast = ts.Gaps == keepGaps
 		}
 	}
+	if row >= 3 && in.Time.Duration == 0 && in.Time.Repeated == row-1 && in.Time.Repeated > 0 {
+		// Every row one time: the same warning as the other commands'.
+		in.Warnings = append(in.Warnings, oneTimeText(row, in.Time.Start))
+	}
 	in.Warnings = append(in.Warnings, pl.warnings...)
 	in.Warnings = append(in.Warnings, guessUnits(pl, in, mags, vecs)...)
 	return in, nil

@@ -3,6 +3,7 @@ package ingest
 import (
 	"bytes"
 	"strconv"
+	"strings"
 	"time"
 )
 
@@ -246,12 +247,39 @@ func unixSeconds(t time.Time) float64 {
 	return float64(t.Unix()) + float64(t.Nanosecond())/1e9
 }
 
+// isMissingText reports whether b marks a missing value: an empty cell,
+// or, in any case, NaN, NA, N/A, #N/A (a spreadsheet's), null, None, or a
+// lone - or -- (a logger's "no value"; no number is a dash alone).
 func isMissingText(b []byte) bool {
-	switch string(b) {
-	case "", "NaN", "nan", "NAN", "NA", "N/A", "null", "NULL":
+	if len(b) > 4 {
+		return false
+	}
+	switch strings.ToLower(string(b)) {
+	case "", "nan", "na", "n/a", "#n/a", "null", "none", "-", "--":
 		return true
 	}
 	return false
+}
+
+// missingMarkers lists the texts isMissingText takes, for messages.
+const missingMarkers = "an empty cell, NaN, NA, N/A, #N/A, null, None, - and --, in any case"
+
+// markerHint is what an error adds for a refused text t that looks like
+// a missing-value marker (no digit, a word or a few signs: "n.a.",
+// "#VALUE!", "missing", "?"), "" for other texts.
+func markerHint(t []byte) string {
+	if len(t) == 0 || len(t) > 12 {
+		return ""
+	}
+	for _, c := range t {
+		switch {
+		case c >= 'a' && c <= 'z', c >= 'A' && c <= 'Z':
+		case strings.IndexByte("#/.-?!*_ ", c) >= 0:
+		default:
+			return ""
+		}
+	}
+	return " (it looks like a missing-value marker, but the only ones read as missing are " + missingMarkers + ")"
 }
 
 func finite(v float64) bool { return v-v == 0 }

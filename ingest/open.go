@@ -52,7 +52,8 @@ const (
 	FormatIAGA        Format = "iaga2002"
 )
 
-// DetectFormat guesses a format from the first bytes of a file.
+// DetectFormat guesses a format from the first bytes of a file. A text
+// file's UTF-8 byte order mark (as Windows Notepad saves one) is skipped.
 func DetectFormat(head []byte) Format {
 	switch {
 	case bytes.HasPrefix(head, []byte("ARROW1")):
@@ -61,11 +62,14 @@ func DetectFormat(head []byte) Format {
 		return FormatParquet
 	case len(head) >= 8 && bytes.Equal(head[:4], []byte{0xff, 0xff, 0xff, 0xff}):
 		return FormatArrowStream
-	case looksIAGA(head):
+	case looksIAGA(bytes.TrimPrefix(head, utf8BOM)):
 		return FormatIAGA
 	}
 	return FormatCSV
 }
+
+// utf8BOM is the UTF-8 byte order mark.
+var utf8BOM = []byte{0xef, 0xbb, 0xbf}
 
 // looksIAGA reports whether text starts like an IAGA-2002 header: a line
 // " Format" naming IAGA-2002, or header lines with the "|" terminator at

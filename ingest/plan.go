@@ -471,6 +471,15 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 		}
 	}
 
+	// A log written from one read without time (Samples.NoTime) carries
+	// MetaTime "absent" and a time column of NaN: it has no time.
+	if _, mapped := cfg.mapping[cTime]; meta[MetaTime] == "absent" && p.src[cTime] >= 0 && !mapped {
+		if !cfg.timeOptional {
+			return nil, fileErr(file, nil, "no time: its metadata (%s: absent) says it was written from a log without time, and its time column holds no times; it can be read only where no time is needed (calibrate; in the library, with WithTimeOptional)", MetaTime)
+		}
+		p.src[cTime] = -1
+	}
+
 	// Required columns.
 	var missing []string
 	p.noTime = p.src[cTime] < 0 && cfg.timeOptional
@@ -482,6 +491,10 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 	if len(missing) > 0 {
 		if err := p.unreadUnitColumn(missing, taken, headerLine); err != nil {
 			return nil, err
+		}
+		if headerLine > 0 && format == string(FormatCSV) && numbersOnly(header) {
+			return nil, fileErr(file, nil, "no column for %s: the header line holds numbers (%s), so the file seems to have no header line; give the column names, in the file's order, with a header option (on the command line --header time,x,y,z,bx,by,bz, say)",
+				strings.Join(missing, ", "), columnList(header[:min(len(header), 4)])+map[bool]string{true: ", ...", false: ""}[len(header) > 4])
 		}
 		tried := "none"
 		if len(cfg.mappingText) > 0 {
@@ -1271,3 +1284,16 @@ func secondsText(v float64) string {
 }
 
 var nan = math.NaN()
+
+// numbersOnly reports whether most names of a header (at least two, and
+// more than half; a group name may be text) read as numbers: a data row
+// taken for the header.
+func numbersOnly(header []string) bool {
+	n := 0
+	for _, h := range header {
+		if _, ok := parseNumber([]byte(strings.TrimSpace(h))); ok {
+			n++
+		}
+	}
+	return n >= 2 && 2*n > len(header)
+}

@@ -368,6 +368,9 @@ func readCalibrationLog(ctx context.Context, rf *readFlags, opts []ingest.Option
 		}
 		*sensor = name
 	}
+	if w := calibrationRepeats(path, s, rows, rf); w != "" {
+		warns = append(warns, w) // calrepeats.go
+	}
 	for _, w := range warns {
 		fmt.Fprintf(stderr, "warning: %s\n", w)
 	}

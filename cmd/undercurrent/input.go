@@ -128,7 +128,7 @@ func (f *readFlags) add(fs *pflag.FlagSet) {
 // addMissing declares --drop-missing, for the commands that need every
 // value of a row (inspect counts missing values and convert carries them).
 func (f *readFlags) addMissing(fs *pflag.FlagSet) {
-	fs.BoolVar(&f.dropMissing, "drop-missing", false, "drop rows with a missing value (NaN, empty cell, null) in time, position or field, with a warning, instead of refusing the log")
+	fs.BoolVar(&f.dropMissing, "drop-missing", false, "drop rows with a missing value (an empty cell, NaN, NA, N/A, #N/A, null, None, - or --, in any case) in time, position or field, with a warning, instead of refusing the log")
 }
 
 // options turns the flags into ingest options; fs may be nil (no flag

@@ -780,10 +780,23 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			}
 		}
 		// A coil log's voltages are not checked against the Earth's field.
-		s, warns, err := o.read.readLog(ctx, path, opts, !o.coil.on())
+		s, rows, warns, err := o.read.readLogRows(ctx, path, opts, !o.coil.on())
 		sv.warnings = append(sv.warnings, warns...)
 		if err != nil {
 			return nil, err
+		}
+		if w := ingest.OneTime(s.Time); w != "" && !sv.ac {
+			// A time column rounded to one value (an AC log is refused
+			// with the same words by the demodulation).
+			sv.warnings = append(sv.warnings, path+": "+w+"; the readings were fitted, but nothing that takes their times (a base station's correction, the drift, the order of the walks) can be trusted")
+		}
+		if sv.ac {
+			// Stale stamps put at their place in the sampling
+			// (stuckstamps.go).
+			var w string
+			if s, w = retimeStuckStamps(path, s, rows, &o.read); w != "" {
+				sv.warnings = append(sv.warnings, w)
+			}
 		}
 		if base != nil {
 			if err := checkBaseNotSurvey(o.base, base, path, s); err != nil {
