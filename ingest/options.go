@@ -233,8 +233,9 @@ func WithOriginMean() Option { return func(c *config) { c.originMode = originMea
 // look at a log's first reading with otherwise the same options).
 func WithOriginFirst() Option { return func(c *config) { c.originMode = originFirst } }
 
-// WithAllowMissing accepts empty cells, NaN and Arrow nulls in numeric
-// columns as missing values (NaN). By default they are errors.
+// WithAllowMissing accepts missing values in numeric columns as NaN: empty
+// cells, Arrow nulls and the markers NaN, NA, N/A, #N/A, null, None, "-"
+// and "--" in any case. By default they are errors.
 func WithAllowMissing(ok bool) Option { return func(c *config) { c.allowMissing = ok } }
 
 // WithTimeOptional(true) reads a log that has no time column, for readers
