@@ -264,9 +264,11 @@ func isMissingText(b []byte) bool {
 // missingMarkers lists the texts isMissingText takes, for messages.
 const missingMarkers = "an empty cell, NaN, NA, N/A, #N/A, null, None, - and --, in any case"
 
-// markerHint is what an error adds for a refused text t that looks like
-// a missing-value marker (no digit, a word or a few signs: "n.a.",
-// "#VALUE!", "missing", "?"), "" for other texts.
+// markerHint is what an error adds for a refused text t that may be a
+// missing-value marker (no digit, a word or a few signs: "n.a.",
+// "#VALUE!", "missing", "?"), "" for other texts. It does not say the
+// text is one: a word in a numeric column may as well be a column read
+// in the wrong place.
 func markerHint(t []byte) string {
 	if len(t) == 0 || len(t) > 12 {
 		return ""
@@ -279,7 +281,7 @@ func markerHint(t []byte) string {
 			return ""
 		}
 	}
-	return " (it looks like a missing-value marker, but the only ones read as missing are " + missingMarkers + ")"
+	return " (if it marks a missing value: the only texts read as missing are " + missingMarkers + ")"
 }
 
 func finite(v float64) bool { return v-v == 0 }
