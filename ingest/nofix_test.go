@@ -2,12 +2,8 @@ package ingest
 
 import (
 	"math"
-	"strconv"
 	"strings"
 	"testing"
-
-	"github.com/apache/arrow-go/v18/arrow"
-	"github.com/apache/arrow-go/v18/arrow/array"
 )
 
 // TestLatLonNoFixLeftOut: many GNSS receivers write latitude 0, longitude
@@ -26,39 +22,9 @@ import (
 // An origin given at 0, 0 is the user's: the readings there are kept.
 func TestLatLonNoFixLeftOut(t *testing.T) {
 	const tol = 1e-6 // DOMAIN.md's values are given to 1e-6 m
-	type row struct{ t, lat, lon, h float64 }
-	rows := []row{{0, 0, 0, 0}, {1, 0, 0, 0}, {2, 40.137, -105.236, 1682}, {3, 40.138, -105.236, 1682}, {4, 0, 0, 0}, {5, 40.137, -105.235, 1682}}
-	sc := arrow.NewSchema([]arrow.Field{
-		{Name: "time", Type: arrow.PrimitiveTypes.Float64},
-		{Name: "lat", Type: arrow.PrimitiveTypes.Float64},
-		{Name: "lon", Type: arrow.PrimitiveTypes.Float64},
-		{Name: "height", Type: arrow.PrimitiveTypes.Float64},
-		{Name: "bx", Type: arrow.PrimitiveTypes.Float64},
-		{Name: "by", Type: arrow.PrimitiveTypes.Float64},
-		{Name: "bz", Type: arrow.PrimitiveTypes.Float64},
-	}, nil)
-	fill := func(rows []row) func(*array.RecordBuilder) {
-		return func(b *array.RecordBuilder) {
-			for _, r := range rows {
-				for k, v := range []float64{r.t, r.lat, r.lon, r.h, 17000, 1000, 48000} {
-					b.Field(k).(*array.Float64Builder).Append(v)
-				}
-			}
-		}
-	}
-	var sb strings.Builder
-	sb.WriteString("time,lat,lon,height,bx,by,bz\n")
-	for _, r := range rows {
-		for _, v := range []float64{r.t, r.lat, r.lon, r.h} {
-			sb.WriteString(strconv.FormatFloat(v, 'g', -1, 64) + ",")
-		}
-		sb.WriteString("17000,1000,48000\n")
-	}
-	files := map[string]string{"csv": writeFile(t, "nofix.csv", sb.String())}
-	for _, ext := range []string{"arrow", "arrows", "parquet"} {
-		// Batches: the two readings without a fix alone, then the rest.
-		files[ext] = writeArrowBatches(t, "nofix."+ext, sc, fill(rows[:2]), fill(rows[2:]))
-	}
+	rows := []llRow{{0, 0, 0, 0}, {1, 0, 0, 0}, {2, 40.137, -105.236, 1682}, {3, 40.138, -105.236, 1682}, {4, 0, 0, 0}, {5, 40.137, -105.235, 1682}}
+	// Batches: the two readings without a fix alone, then the rest.
+	files := latLonLogs(t, "nofix", rows, 2)
 	// Where the warning names the first reading left out.
 	firstAt := map[string]string{"csv": "nofix.csv:2", "arrow": "batch 0 row 0", "arrows": "batch 0 row 0", "parquet": "batch 0 row 0"}
 	for _, mean := range []bool{false, true} {

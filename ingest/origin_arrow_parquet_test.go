@@ -2,12 +2,7 @@ package ingest
 
 import (
 	"math"
-	"strconv"
-	"strings"
 	"testing"
-
-	"github.com/apache/arrow-go/v18/arrow"
-	"github.com/apache/arrow-go/v18/arrow/array"
 )
 
 // TestLatLonOriginEveryFormat: a latitude/longitude/height log read as an
@@ -33,53 +28,15 @@ import (
 func TestLatLonOriginEveryFormat(t *testing.T) {
 	const tol = 1e-6 // DOMAIN.md's values are given to 1e-6 m
 	nan := math.NaN()
-	type row struct{ t, lat, lon, h float64 }
-	full := []row{{0, 40.137, -105.236, 1682}, {1, 40.138, -105.236, 1682}, {2, 40.137, -105.235, 1682}}
-	gap := append([]row{{-1, nan, -105.236, 1682}}, full...)
-	sc := arrow.NewSchema([]arrow.Field{
-		{Name: "time", Type: arrow.PrimitiveTypes.Float64},
-		{Name: "lat", Type: arrow.PrimitiveTypes.Float64},
-		{Name: "lon", Type: arrow.PrimitiveTypes.Float64},
-		{Name: "height", Type: arrow.PrimitiveTypes.Float64},
-		{Name: "bx", Type: arrow.PrimitiveTypes.Float64},
-		{Name: "by", Type: arrow.PrimitiveTypes.Float64},
-		{Name: "bz", Type: arrow.PrimitiveTypes.Float64},
-	}, nil)
-	fill := func(rows []row) func(*array.RecordBuilder) {
-		return func(b *array.RecordBuilder) {
-			for _, r := range rows {
-				for k, v := range []float64{r.t, r.lat, r.lon, r.h, 17000, 1000, 48000} {
-					b.Field(k).(*array.Float64Builder).Append(v)
-				}
-			}
-		}
-	}
-	csvText := func(rows []row) string {
-		var sb strings.Builder
-		sb.WriteString("time,lat,lon,height,bx,by,bz\n")
-		for _, r := range rows {
-			for k, v := range []float64{r.t, r.lat, r.lon, r.h} {
-				if v == v {
-					sb.WriteString(strconv.FormatFloat(v, 'g', -1, 64))
-				}
-				if k < 3 {
-					sb.WriteByte(',')
-				}
-			}
-			sb.WriteString(",17000,1000,48000\n")
-		}
-		return sb.String()
-	}
+	full := []llRow{{0, 40.137, -105.236, 1682}, {1, 40.138, -105.236, 1682}, {2, 40.137, -105.235, 1682}}
+	gap := append([]llRow{{-1, nan, -105.236, 1682}}, full...)
 	for _, lg := range []struct {
 		name  string
-		rows  []row
+		rows  []llRow
 		first int // index of the first reading with a position
 	}{{"full", full, 0}, {"gap", gap, 1}} {
-		files := map[string]string{"csv": writeFile(t, lg.name+".csv", csvText(lg.rows))}
-		for _, ext := range []string{"arrow", "arrows", "parquet"} {
-			// Batches: the first reading alone, then the rest.
-			files[ext] = writeArrowBatches(t, lg.name+"."+ext, sc, fill(lg.rows[:1]), fill(lg.rows[1:]))
-		}
+		// Batches: the first reading alone, then the rest.
+		files := latLonLogs(t, lg.name, lg.rows, 1)
 		for _, mean := range []bool{false, true} {
 			opts := []Option{WithAllowMissing(true)}
 			what := lg.name + " first"
