@@ -100,6 +100,18 @@ func writeMillisecondTimes(t *testing.T, src, dst string) {
 // directory, whose path it returns.
 func walkMillisecondStamps(t *testing.T, rate, name string) (*simulate.Scenario, string) {
 	t.Helper()
+	sc, exact := simulateWalkAt(t, rate)
+	dir := filepath.Dir(exact)
+	ms := filepath.Join(dir, name)
+	writeMillisecondTimes(t, exact, ms)
+	return sc, ms
+}
+
+// simulateWalkAt simulates the AC walk of ac-walk-2khz.toml sampled at rate
+// Hz into walk.csv in a temporary directory, returning its scenario and the
+// log's path.
+func simulateWalkAt(t *testing.T, rate string) (*simulate.Scenario, string) {
+	t.Helper()
 	_, path := scenario(t, "ac-walk-2khz.toml")
 	text, err := os.ReadFile(path)
 	if err != nil {
@@ -120,7 +132,5 @@ func walkMillisecondStamps(t *testing.T, rate, name string) (*simulate.Scenario,
 	}
 	exact := filepath.Join(dir, "walk.csv")
 	mustCLI(t, "simulate", scen, "-o", exact)
-	ms := filepath.Join(dir, name)
-	writeMillisecondTimes(t, exact, ms)
-	return sc, ms
+	return sc, exact
 }

@@ -8,8 +8,6 @@ import (
 	"strconv"
 	"strings"
 	"testing"
-
-	"undercurrent/inverse/simulate"
 )
 
 // TestLocateStuckStamps: the AC walk of the end-to-end tests (a 50 Hz
@@ -23,26 +21,8 @@ import (
 // and the first row's line in a warning, and recovers the cable within the
 // allowances of TestE2EACWalk.
 func TestLocateStuckStamps(t *testing.T) {
-	_, path := scenario(t, "ac-walk-2khz.toml")
-	text, err := os.ReadFile(path)
-	if err != nil {
-		t.Fatal(err)
-	}
-	const old = "sample_rate_hz = 2000.0"
-	if !strings.Contains(string(text), old) {
-		t.Fatalf("%s: no %q to change", path, old)
-	}
-	dir := t.TempDir()
-	scen := filepath.Join(dir, "walk.toml")
-	if err := os.WriteFile(scen, []byte(strings.Replace(string(text), old, "sample_rate_hz = 500.0", 1)), 0o644); err != nil {
-		t.Fatal(err)
-	}
-	sc, err := simulate.Load(scen)
-	if err != nil {
-		t.Fatal(err)
-	}
-	exact := filepath.Join(dir, "walk.csv")
-	mustCLI(t, "simulate", scen, "-o", exact)
+	sc, exact := simulateWalkAt(t, "500.0")
+	dir := filepath.Dir(exact)
 	stuck := filepath.Join(dir, "walk-stuck.csv")
 	first := stickLogStamps(t, exact, stuck, 100, 33)
 
