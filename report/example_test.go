@@ -112,7 +112,8 @@ func ExampleWriteJSON() {
 	//           "dip_sigma_deg": 0,
 	//           "span_m": [0, 0]
 	//         }
-	//       ]
+	//       ],
+	//       "fit": "sound"
 	//     }
 	//   ],
 	//   "findings": [

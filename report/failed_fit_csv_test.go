@@ -82,3 +82,50 @@ func TestCSVFailedFitHasNoNumbers(t *testing.T) {
 		t.Errorf("%d failed rows, want W6, W7 and W8", failed)
 	}
 }
+
+// TestJSONGroupFitAgreesWithCSV: results.json's groups[].fit gives each
+// group's worth in the words results.csv's fit column and route.geojson's
+// "fit" property use, set from ok and problem when written whatever the
+// document held, so a reader of results.json need not combine ok and
+// problem itself. On the Wickham Staithe cable (wickhamDoc) the rows past
+// its end are failed and the others sound or used with care. Fails before
+// the change (no fit member).
+func TestJSONGroupFitAgreesWithCSV(t *testing.T) {
+	d := wickhamDoc(t, 5)
+	var buf strings.Builder
+	if err := WriteJSON(&buf, d); err != nil {
+		t.Fatal(err)
+	}
+	var raw struct {
+		Groups []struct {
+			Key     string `json:"key"`
+			OK      bool   `json:"ok"`
+			Problem string `json:"problem"`
+			Fit     string `json:"fit"`
+		} `json:"groups"`
+	}
+	if err := json.Unmarshal([]byte(buf.String()), &raw); err != nil {
+		t.Fatal(err)
+	}
+	csvFit := map[string]string{}
+	for _, r := range readCSV(t, d) {
+		csvFit[r["group"]] = r["fit"]
+	}
+	seen := map[string]int{}
+	for _, g := range raw.Groups {
+		want := FitSound
+		switch {
+		case !g.OK:
+			want = FitFailed
+		case g.Problem != "":
+			want = FitWithCare
+		}
+		if g.Fit != want || g.Fit != csvFit[g.Key] {
+			t.Errorf("%s: results.json fit %q, results.csv %q, want %q (ok %v, problem %q)", g.Key, g.Fit, csvFit[g.Key], want, g.OK, g.Problem)
+		}
+		seen[g.Fit]++
+	}
+	if seen[FitFailed] == 0 || seen[FitSound] == 0 {
+		t.Errorf("fits written: %v, want failed and sound ones", seen)
+	}
+}

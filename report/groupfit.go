@@ -12,14 +12,21 @@ func (g *Group) fitted() bool {
 	return g.OK || g.Status != "" || g.RMS != 0 || g.DOF > 0
 }
 
-// MarshalJSON writes g as an element of results.json's groups. A group
-// whose fit estimated nothing (fitted) has no rms_nt, background_nt,
+// MarshalJSON writes g as an element of results.json's groups, with
+// "fit": its worth in the words results.csv's fit column and
+// route.geojson's "fit" property use (fitStatus: sound, used with care,
+// failed), so that a reader need not combine ok and problem itself;
+// ReadJSON ignores it, as it follows from ok and problem. A group whose
+// fit estimated nothing (fitted) has no rms_nt, background_nt,
 // background_sigma_nt, chi2 or dof; its other members are as for any
 // group. ReadJSON reads the missing members as zero.
 func (g Group) MarshalJSON() ([]byte, error) {
 	type plain Group // Group's members without this method
 	if g.fitted() {
-		return json.Marshal(plain(g))
+		return json.Marshal(struct {
+			plain
+			Fit string `json:"fit"`
+		}{plain(g), fitStatus(&g)})
 	}
 	// The members named here take the place of plain's of the same name
 	// (the shallower field wins) and, nil, are left out.
@@ -30,7 +37,8 @@ func (g Group) MarshalJSON() ([]byte, error) {
 		BackgroundSigma *[3]float64 `json:"background_sigma_nt,omitempty"`
 		Chi2            *float64    `json:"chi2,omitempty"`
 		DOF             *int        `json:"dof,omitempty"`
-	}{plain: plain(g)})
+		Fit             string      `json:"fit"`
+	}{plain: plain(g), Fit: fitStatus(&g)})
 }
 
 // GroupRMS is a group's residual RMS, nT, as the crew report's table of
