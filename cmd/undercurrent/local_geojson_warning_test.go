@@ -82,3 +82,37 @@ func TestLocateWarnsGeoJSONWithoutOrigin(t *testing.T) {
 		t.Errorf("with an origin: frame %q, coordinate_note present %v", fc.Frame, strings.Contains(string(b), "coordinate_note"))
 	}
 }
+
+// TestLocateWarnsGridCoordinates: a log whose positions are a projected
+// grid's eastings and northings (here the simulated line moved to 530 km
+// east, 180 km north, as a national grid's or UTM's would be) gets
+// route.geojson with those metres, outside RFC 7946's range of degrees
+// (section 4: longitude and latitude). The warning had told its user to
+// give an origin line, which would take 530 km of easting for metres from
+// a nearby point (found in review); it now says the positions look like a
+// grid's and to give latitude and longitude. Fails before the change.
+func TestLocateWarnsGridCoordinates(t *testing.T) {
+	dir := t.TempDir()
+	sc, _ := scenario(t, "single-line.toml")
+	s, err := simulate.Simulate(sc)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i := range s.X {
+		s.X[i] += 530000
+		s.Y[i] += 180000
+	}
+	grid := filepath.Join(dir, "grid.csv")
+	if err := ingest.WriteSamples(grid, s); err != nil {
+		t.Fatal(err)
+	}
+	summary := mustCLI(t, "locate", "--group-by", "group", "-o", filepath.Join(dir, "out"), grid)
+	for _, want := range []string{"look like a projected grid", "convert the positions to latitude and longitude", "about 530"} {
+		if !strings.Contains(summary, want) {
+			t.Errorf("locate of grid coordinates: no %q in the warning:\n%s", want, summary)
+		}
+	}
+	if strings.Contains(summary, "give the log's origin") {
+		t.Errorf("locate of grid coordinates still advises an origin line:\n%s", summary)
+	}
+}

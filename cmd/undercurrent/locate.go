@@ -491,13 +491,47 @@ Examples:
 // metres a map viewer takes for degrees; empty with an origin.
 // The file says so too (report.GeoJSONLocalNote), but only a reader of
 // its text sees it (found in review: no warning at the "results in"
-// line).
+// line). Readings whose centre lies over gridLikeM from the frame's
+// origin are taken for projected grid coordinates (eastings and
+// northings of a national grid or UTM), for which an origin line would
+// be wrong advice: it places metres east and north of a nearby point, so
+// 530 km of easting would be read as 530 km from it (found in review);
+// such a log is told to give latitude and longitude instead, and that the
+// file's coordinates lie outside RFC 7946's range.
 func localGeoJSONWarning(doc *report.Document) string {
 	if doc.Frame.Origin != nil {
 		return ""
 	}
+	if e, n, ok := gridLike(doc); ok {
+		return fmt.Sprintf("%s holds the log's own coordinates (readings centred about %.0f m east, %.0f m north), not longitude and latitude: "+
+			"they look like a projected grid's eastings and northings, which a map viewer cannot place and which lie outside GeoJSON's range of degrees; "+
+			"convert the positions to latitude and longitude (lat, lon and height columns) to have it placed (an origin line is for metres from a nearby point, not for grid coordinates)",
+			report.FileGeoJSON, e, n)
+	}
 	return report.FileGeoJSON + " holds metres east and north of a local origin, not longitude and latitude: the survey had no geodetic positions, " +
 		"so a map viewer takes its metres for degrees and places it wrongly unless told the frame; give the log's origin (" + originHowTo + ") to have it placed"
+}
+
+// gridLikeM is how far from a local frame's origin, m, the readings'
+// centre must lie for locate to take the positions for projected grid
+// coordinates: a survey laid out in metres from a chosen point stays
+// within a few kilometres of it, while grid eastings and northings run to
+// hundreds of kilometres.
+const gridLikeM = 20e3
+
+// gridLike returns the mean of doc's groups' centroids, east and north,
+// and whether it lies over gridLikeM from the frame's origin.
+func gridLike(doc *report.Document) (e, n float64, ok bool) {
+	if len(doc.Groups) == 0 {
+		return 0, 0, false
+	}
+	for _, g := range doc.Groups {
+		e += g.Centroid[0]
+		n += g.Centroid[1]
+	}
+	e /= float64(len(doc.Groups))
+	n /= float64(len(doc.Groups))
+	return e, n, math.Hypot(e, n) > gridLikeM
 }
 
 // progressOn returns a progress-bar writer: stderr when it is a terminal,
