@@ -707,6 +707,15 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64, bs 
 				dec = 2
 			}
 		}
+		// The levels either side tell a change along the conductor from
+		// a change in time only when the traverses were walked at one
+		// current: a supply that varies (a load, a traction return, a
+		// switched rectifier) changed between the walks of two traverses
+		// reads the same (found in review: a tram's current stepping
+		// while a route was walked was read as a bond).
+		if what == "current" {
+			fed += stepInTime
+		}
 		kind, severity := KindCurrentStep, SeverityWarning
 		msg := fmt.Sprintf("%s %s by %s A between %s (chainage %.1f m) and %s (%.1f m)%s: %s%s",
 			what, verb, pm(math.Abs(size), sigma), label(first), first.Chainage, label(second), second.Chainage, along, why, fed)
@@ -875,6 +884,11 @@ func against(u []*Placed, run [2]int, pl levels) bool {
 	raw, rawSigma := b.Current-a.Current, math.Hypot(a.CurrentSigma, b.CurrentSigma)
 	return (pl.step > 0) != (raw > 0) && math.Abs(raw) > againstK*rawSigma
 }
+
+// stepInTime is the other reading of a current step that a route walked
+// once cannot rule out, added to a step's message after its cause along
+// the conductor.
+const stepInTime = ", or the supply's current changed from the walk of one traverse to the other's (walk one again to tell)"
 
 // againstK is how many sigmas the change between a step's bracketing
 // stations must go against the step for the step to be dropped (against):

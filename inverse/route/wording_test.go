@@ -355,8 +355,8 @@ func TestStepSaysBetweenOnce(t *testing.T) {
 		step float64
 		want string
 	}{
-		{1, ": current leaving the conductor there; "},
-		{-1, ": current joining the conductor there (a bond, a tee or another source); "},
+		{1, ": current leaving the conductor there, "},
+		{-1, ": current joining the conductor there (a bond, a tee or another source), "},
 	} {
 		r, err := Build(spur(1, tc.step, 15), nil)
 		if err != nil {
@@ -417,5 +417,36 @@ func TestStepReadAlongTheFlow(t *testing.T) {
 	}
 	if m := message(ac); !strings.Contains(m, leaving) || !strings.Contains(m, "if it is fed from the start of the route") {
 		t.Errorf("AC: %q", m)
+	}
+}
+
+// TestStepMayBeInTime: a route walked once reads a change of the supply's
+// current between the walks of two traverses (a tram's current, a
+// switched rectifier) as it reads current leaving or joining between
+// them, so a current step's message says it may be either, DC and AC;
+// a pair's net current, which a change of supply moves in proportion, is
+// worded as before. Fails before the change (found in review: a step in
+// time read as "a bond, a tee or another source").
+func TestStepMayBeInTime(t *testing.T) {
+	for _, tc := range []struct {
+		name string
+		ac   bool
+		step float64
+	}{{"DC loss", false, 1}, {"DC gain", false, -1}, {"AC loss", true, 1}} {
+		st := spur(1, tc.step, 15)
+		for i := range st {
+			st[i].AC = tc.ac
+		}
+		r, err := Build(st, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		s := findings(r, KindCurrentStep)
+		if len(s) != 1 {
+			t.Fatalf("%s: %d steps, want 1", tc.name, len(s))
+		}
+		if !strings.Contains(s[0].Message, stepInTime) {
+			t.Errorf("%s: %q does not say the current may have changed in time", tc.name, s[0].Message)
+		}
 	}
 }
