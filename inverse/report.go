@@ -1597,7 +1597,8 @@ const pairDipoleShare = 0.3
 // identifiable, not significant (within phasorK sigma of zero for AC, 3 for DC) or
 // not known to pairRelSigma of itself, or the lines coincide within their uncertainty (as the guard judges them). It is
 // determined when its moment exceeds the same number of sigmas and its centre's
-// depth and offset sigmas are positive and under half the centre's depth.
+// depth and offset sigmas are positive and under half the centre's distance below
+// the mean sensor height, whatever the depths are reported from.
 //
 // When the lines have collapsed onto one another (spacing under 2% of their depth
 // below the sensors: the least squares prefer the line-dipole limit, or the fit
@@ -1655,8 +1656,14 @@ func (f *fitter) pairOf(c *candidate, su *summary, i, j int) (PairEstimate, bool
 		sg = s2
 	}
 	pe := pairEstimate(sp, i, j, base, sg)
+	// The centre's sigmas against its distance below the sensors (h), not its
+	// reported depth, so that the datum (Settings.ReferenceZ) changes only the
+	// depth reported: against the depth below a ground 0.3 m under the sensors,
+	// a twin cable 0.2 m down read along one traverse with 50 nT of noise (offset
+	// sigma 0.16 m, 0.5 m below the sensors) was a pair without a datum and one
+	// line with the ground as datum (TestPairAnyDatum).
 	if !(pe.Moment > k*pe.MomentSigma) || !(pe.DepthSigma > 0) || !(pe.OffsetSigma > 0) ||
-		!(pe.DepthSigma < 0.5*pe.Depth) || !(pe.OffsetSigma < 0.5*pe.Depth) {
+		!(pe.DepthSigma < 0.5*h) || !(pe.OffsetSigma < 0.5*h) {
 		return PairEstimate{}, false
 	}
 	pe.Notes = append(pe.Notes, "go-and-return pair: the current and the spacing are not separately determined, only their product; the centre, its depth, the azimuth and current times spacing are")

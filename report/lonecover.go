@@ -60,7 +60,7 @@ func (d *Document) addLoneCover(fits []Fit, r *route.Route, rs *route.Settings, 
 			if j == 0 || s.Kind == KindDipole || !sound(&s) || tracked[key{p.Index, j}] || share(p.Index, j) || !s.Identifiable.Azimuth || lineAboveGround(fits[p.Index].Result, j, rs.SensorHeight) {
 				continue
 			}
-			lones = append(lones, lone{k, trackSource{fit: p.Index, source: j, steep: true, linePoint: s.Point, lineDir: s.Dir, lineDepth: s.Depth, azSigma: s.AzimuthSigma}})
+			lones = append(lones, lone{k, trackSource{fit: p.Index, source: j, steep: true, linePoint: s.Point, lineDir: s.Dir, lineDepth: sensorsLevel(&fits[p.Index]) - s.Point[2], azSigma: s.AzimuthSigma}})
 		}
 	}
 	inLine := func(k, fit, j int) []string {

@@ -232,3 +232,62 @@ func simulatedDocRef(t *testing.T, sc *simulate.Scenario, ref *float64) *Documen
 	}
 	return d
 }
+
+// TestCloseCablesTracksAnyDatum: Lattice Drove with cable B 1.0 m east of A
+// (1.3 and 1.6 m below the sensors 0.3 m up) at seed 202, fitted with depths
+// reported below the ground (ReferenceZ 0), below ReferenceZ 0.3 (the
+// sensors' height, as --sensor-height 0.3 gives) and below the mean sensor
+// height (no datum). The fits are the same; the datum only says where depths
+// are counted from, so the further conductors (their numbers, groups and
+// currents) and the findings (kind, severity, conductor, groups) must be the
+// same too. What they are is the known limit at 1.0 m (DEVELOPERS.md,
+// "Conductor weaker than a parallel cable"): this checks only that the datum
+// does not change it. Before, the track gate (trackGate) took the depths
+// reported: 1.5 m with the ground as datum against 1.95 m without, and with
+// the ground as datum the lines of B before the change and of A after it
+// made two further conductors, each said to end beside the change, where
+// with no datum or 0.3 they made one (fails before the fix with ReferenceZ 0).
+func TestCloseCablesTracksAnyDatum(t *testing.T) {
+	if testing.Short() {
+		t.Skip("fits 36 traverses")
+	}
+	sc, err := simulate.Parse([]byte(latticeDroveScenarioAt(202, 1.0)), "lattice-drove")
+	if err != nil {
+		t.Fatal(err)
+	}
+	sensors := 0.3
+	datums := []struct {
+		name string
+		ref  *float64
+	}{{"mean sensor height", nil}, {"ground", new(0.0)}, {"sensors", &sensors}}
+	var first string
+	for i, dt := range datums {
+		sig := tracksSignature(simulatedDocRef(t, sc, dt.ref))
+		if i == 0 {
+			first = sig
+			t.Logf("datum %s:\n%s", dt.name, sig)
+			continue
+		}
+		if sig != first {
+			t.Errorf("datum %s: the further conductors and findings\n%s\nwith datum %s\n%s", dt.name, sig, datums[0].name, first)
+		}
+	}
+}
+
+// tracksSignature is what d says of the further conductors and the findings,
+// without the depths: each further conductor's number and its stations'
+// groups and currents, and each finding's kind, severity, conductor and groups.
+func tracksSignature(d *Document) string {
+	var b strings.Builder
+	for _, tr := range d.Conductors {
+		fmt.Fprintf(&b, "conductor %d:", tr.Number)
+		for _, s := range tr.Route.Stations {
+			fmt.Fprintf(&b, " %s %.4f", s.Key, s.Current)
+		}
+		b.WriteString("\n")
+	}
+	for _, f := range d.Findings {
+		fmt.Fprintf(&b, "finding %s %s conductor %d %v\n", f.Kind, f.Severity, f.Conductor, f.Groups)
+	}
+	return b.String()
+}

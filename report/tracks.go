@@ -60,7 +60,8 @@ import (
 //     lost for it; a line parallel to conductor 1 has slope about 0 and
 //     is predicted flat, as before. A source's distance from a track is
 //     taken in the cross section, from the predicted offset and the
-//     track's last depth:
+//     track's last depth, each depth here the line's distance below its
+//     group's mean sensor height, not the depth reported (see below):
 //
 //     distance = hypot(offset - predicted offset, depth - last depth)
 //
@@ -76,7 +77,13 @@ import (
 //     usually further apart than that. The shallower of the two depths
 //     keeps a deep, poorly placed source from opening a wide gate; the
 //     metre floor keeps shallow conductors from losing their track to
-//     fitting noise.
+//     fitting noise. How far a fitted position wanders goes with the
+//     line's distance from the sensors, whatever level the depths are
+//     reported below, so the gate takes that distance: taken in the depths
+//     reported, the same fits of Lattice Drove with cable B 1.0 m beside A
+//     (seed 202) gave one further conductor with no datum and two, each
+//     said to end, with the ground 0.3 m below the sensors as datum (gates
+//     of 1.5 m against 1.95 m; TestCloseCablesTracksAnyDatum).
 //   - Within a group, the pairs of source and track within their gate are
 //     taken nearest first (ties by track number, then by source), so the
 //     order in which the fit lists its sources does not matter and a group
@@ -121,7 +128,7 @@ type trackSource struct {
 	pos         int     // the group's position along the primary route
 	chainage    float64 // the group's chainage on the primary route, m
 	offset      float64 // signed offset from the primary conductor, m
-	depth       float64 // depth below the depth reference, m
+	depth       float64 // distance below the group's mean sensor height, m (sensorsLevel)
 	current     float64 // |current|, A (a pair's |net current|)
 	// slope is the change of offset per metre of chainage along the
 	// source's own fitted direction, tan of its angle in plan to the
@@ -132,7 +139,8 @@ type trackSource struct {
 	// steep is true for a line whose fitted direction (determined by the
 	// readings) lies more than crossAngle in plan from the primary's:
 	// linePoint and lineDir are its fitted point (nearest the readings'
-	// centre), direction and depth there, and azSigma its azimuth sigma,
+	// centre), direction and distance below the group's mean sensor
+	// height there (as depth), and azSigma its azimuth sigma,
 	// degrees (see lineDistance).
 	steep              bool
 	linePoint, lineDir [3]float64
@@ -429,6 +437,7 @@ func trackCandidates(fits []Fit, r *route.Route, pairRoute, ac bool, sensorHeigh
 		}
 		u := [2]float64{p.Dir[0] / uh, p.Dir[1] / uh}
 		right := [2]float64{u[1], -u[0]}
+		zs := sensorsLevel(&fits[p.Index])
 		partner := circuitPartner(&fits[p.Index], ac, pairRoute)
 		if sw := sameWayOf(res); partner < 0 && sw != nil && fits[p.Index].sumSplit {
 			partner = sw.Lines[1] // summed into the station (sameway.go)
@@ -446,7 +455,7 @@ func trackCandidates(fits []Fit, r *route.Route, pairRoute, ac bool, sensorHeigh
 			if a == 0 || b == 0 || a == partner || b == partner {
 				continue // conductor 1's own pair (circuitOf)
 			}
-			off, depth := crossOffset(p.Point, u, right, inverse.SourceEstimate{Point: q.Point, Dir: q.Dir, Depth: q.Depth})
+			off, depth := crossBelow(p.Point, u, right, inverse.SourceEstimate{Point: q.Point, Dir: q.Dir, Depth: q.Depth}, zs)
 			if !soundPair(q, ac) || !finite(off) || !finite(depth) {
 				continue
 			}
@@ -465,7 +474,7 @@ func trackCandidates(fits []Fit, r *route.Route, pairRoute, ac bool, sensorHeigh
 			if !sound(&s) || lineAboveGround(res, j+1, sensorHeight) {
 				continue
 			}
-			off, depth := crossOffset(p.Point, u, right, s)
+			off, depth := crossBelow(p.Point, u, right, s, zs)
 			if !finite(off) || !finite(depth) {
 				continue
 			}
@@ -484,7 +493,7 @@ func trackCandidates(fits []Fit, r *route.Route, pairRoute, ac bool, sensorHeigh
 				offset: off, depth: depth, current: math.Abs(s.Current),
 				slope: slope, slopeSigma: slopeSigma,
 				steep: steep, linePoint: s.Point, lineDir: s.Dir,
-				lineDepth: s.Depth, azSigma: s.AzimuthSigma,
+				lineDepth: zs - s.Point[2], azSigma: s.AzimuthSigma,
 			})
 		}
 	}
@@ -498,6 +507,35 @@ func trackCandidates(fits []Fit, r *route.Route, pairRoute, ac bool, sensorHeigh
 func crossOffset(p [3]float64, u, right [2]float64, s inverse.SourceEstimate) (offset, depth float64) {
 	q, depth, _ := crossAt(p, u, s)
 	return (q[0]-p[0])*right[0] + (q[1]-p[1])*right[1], depth
+}
+
+// crossBelow is crossOffset with, in place of the depth, the line's distance
+// there below zs, its group's mean sensor height (sensorsLevel).
+func crossBelow(p [3]float64, u, right [2]float64, s inverse.SourceEstimate, zs float64) (offset, below float64) {
+	q, _, _ := crossAt(p, u, s)
+	return (q[0]-p[0])*right[0] + (q[1]-p[1])*right[1], zs - q[2]
+}
+
+// sensorsLevel is the height, m (up), that fit f's lines' distance below the
+// sensors is measured from: the mean height of its readings, as the fit's own
+// (inverse.Result.ReferenceZ when its depths are below the mean sensor
+// height). Without readings it is the level its depths are reported below.
+func sensorsLevel(f *Fit) float64 {
+	res := f.Result
+	if res != nil && res.DepthReference == "mean sensor height" {
+		return res.ReferenceZ
+	}
+	if f.Problem != nil && len(f.Problem.Points) > 0 {
+		var s float64
+		for _, q := range f.Problem.Points {
+			s += q[2]
+		}
+		return s / float64(len(f.Problem.Points))
+	}
+	if res != nil {
+		return res.ReferenceZ
+	}
+	return 0
 }
 
 // crossAt is where crossOffset places line s: the point q where it meets
