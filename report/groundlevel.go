@@ -485,12 +485,12 @@ func referenceLevelWarnings(fits []Fit, origin *Origin) (warn []string, off map[
 		}
 	}
 	// The currents, not only the depths, depend on the level where it
-	// does not hold: a fit's two lines close together are summed as one
-	// conductor only when nearer each other than their depth below it,
-	// and a line above it sets the group aside. On a weld main whose
-	// sensors climbed 2 m, two splits were no longer summed and two false
-	// current steps stood beside traverses this warning had said only the
-	// depths of (found in review).
+	// does not hold: a line above it sets the group aside. (Two lines
+	// close together are summed by their distance below the sensors since
+	// the same-way test stopped using the level; before, on a weld main
+	// whose sensors climbed 2 m, two splits were no longer summed and two
+	// false current steps stood beside traverses this warning had said
+	// only the depths of; found in review.)
 	where := fmt.Sprintf("%d groups", len(offKeys))
 	switch {
 	case len(offKeys) == 1:
@@ -498,7 +498,7 @@ func referenceLevelWarnings(fits []Fit, origin *Origin) (warn []string, off map[
 	case len(offKeys) > 1:
 		where = fmt.Sprintf("%d groups, %s to %s", len(offKeys), offKeys[0], offKeys[len(offKeys)-1])
 	}
-	warn = append(warn, fmt.Sprintf("one flat ground level (--reference-z, up = %g m) does not hold for this survey: the sensors' mean height above it runs from %.2f m%s to %.2f m%s. Depths and cover below it are wrong where the ground is not at that level, and so can be the currents and the current findings there (%s, over %.1f m higher above it than the lowest): two lines a fit finds close together are taken for one conductor, and summed, only when nearer each other than their depth below this level, and a line placed above it says nothing of the data, so such a group is set aside, out of the current profile as well as the cover; current steps beside those groups can be false or missed. Give the sensors' height above the ground with --sensor-height instead (with heights in the log, the ground then follows them).%s",
+	warn = append(warn, fmt.Sprintf("one flat ground level (--reference-z, up = %g m) does not hold for this survey: the sensors' mean height above it runs from %.2f m%s to %.2f m%s. Depths and cover below it are wrong where the ground is not at that level, and so can be the currents and the current findings there (%s, over %.1f m higher above it than the lowest): a line placed above it says nothing of the data, so such a group is set aside, out of the current profile as well as the cover; current steps beside those groups can be false or missed. Give the sensors' height above the ground with --sensor-height instead (with heights in the log, the ground then follows them).%s",
 		zref, lo.h, name(lo.key), hi.h, name(hi.key), where, levelFlat, frame))
 	return warn, off
 }

@@ -38,4 +38,10 @@ func TestFlatLevelWarningNamesCurrents(t *testing.T) {
 			t.Errorf("warning lacks %q: %s", want, w)
 		}
 	}
+	// Two close lines are summed by their distance below the sensors,
+	// whatever the level (sameWayOf): the warning no longer says the level
+	// decides it.
+	if strings.Contains(w, "summed") {
+		t.Errorf("warning says the level decides which lines are summed: %s", w)
+	}
 }
