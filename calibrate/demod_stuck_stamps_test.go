@@ -132,3 +132,49 @@ func TestDemodulateOneTime(t *testing.T) {
 		t.Errorf("every row at one time: %v, want the cause named", err)
 	}
 }
+
+// TestStuckRowsNotQuantised: stamps written more coarsely than the
+// sampling (2 kHz floored to the millisecond: two rows a stamp) repeat
+// at every other row; with a row dropped now and then, a repeated stamp
+// before a gap of a whole stamp had passed as a stale one and been moved
+// by up to half a sample (found in review: 11 rows on one log). Such stamps are left to
+// the quantised-stamp re-timing; one stale stamp in a hundred on the same
+// sampling, stamped to the microsecond, is still found. Fails before the
+// change.
+func TestStuckRowsNotQuantised(t *testing.T) {
+	rng := rand.New(rand.NewPCG(5, 9))
+	var tq, tf []float64
+	for i := 0; i < 20000; i++ {
+		switch r := rng.IntN(200); {
+		case r < 2: // a row dropped
+			continue
+		case r == 2: // a block of 2 or 3 rows dropped
+			i += 1 + rng.IntN(2)
+			continue
+		}
+		ts := 1.7e9 + float64(i)/2000
+		tq = append(tq, math.Floor(ts*1000)/1000)
+		tf = append(tf, math.Round(ts*1e6)/1e6)
+	}
+	n := len(tq)
+	var b [3][]float64
+	for k := range b {
+		b[k] = make([]float64, n)
+		for i := range b[k] {
+			b[k][i] = rng.NormFloat64()
+		}
+	}
+	if out, rows := stuckRows(tq, b, nil); out != nil || rows != nil {
+		t.Errorf("millisecond stamps at 2 kHz: %d rows taken for stale stamps, want none", len(rows))
+	}
+	stale := 0
+	for i := 50; i+1 < n; i += 100 {
+		if tf[i+1]-tf[i] < 0.0006 { // the next row is the next sample
+			tf[i+1] = tf[i]
+			stale++
+		}
+	}
+	if _, rows := stuckRows(tf, b, nil); len(rows) < stale*9/10 || len(rows) > stale {
+		t.Errorf("microsecond stamps with %d stale ones: %d re-timed", stale, len(rows))
+	}
+}
