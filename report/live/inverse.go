@@ -235,7 +235,10 @@ type InverseCommissioner struct{}
 // The geometry returned is one the readings resolve (resolved): lines
 // fitted to readings in which no conductor's field stands out of the
 // noise (the currents off) are refused with an unresolvedError, which the
-// worker meets by waiting for windows with current.
+// worker meets by waiting for windows with current; lines the sensors'
+// layout does not fix (their place or bearing sigmas too large, or their
+// covariance not to be found) with one marked layout, which the worker
+// counts and stops on.
 func (c InverseCommissioner) Commission(in *SolveInput, stated []ConductorConfig) ([]ConductorConfig, error) {
 	conds, err := c.fit(in, stated)
 	if err != nil {
@@ -405,7 +408,10 @@ func (e *unresolvedError) Unwrap() error { return e.err }
 // noise: a line whose leaving out raises the chi-square by less than
 // minLineDeltaChi2 (against the readings' sigmas, or with none given the
 // fit's own residual variance), or whose place or bearing has a sigma
-// beyond maxPlaceSigmaRatio or maxAzimuthSigmaDeg.
+// beyond maxPlaceSigmaRatio or maxAzimuthSigmaDeg. A geometry whose
+// covariance cannot be found (geometryCovariance: no more readings than
+// unknowns, or a singular information matrix) is refused as a layout
+// that does not fix the lines (unfixedWhy says why).
 func resolved(in *SolveInput, conds []ConductorConfig) error {
 	n := len(in.Points)
 	sig := in.Sigmas
@@ -472,7 +478,18 @@ func resolved(in *SolveInput, conds []ConductorConfig) error {
 		return &unresolvedError{err: fmt.Errorf("the commissioning readings do not resolve the field of %s: the currents are off or too small for the noise; a geometry fitted to them would be the noise's", strings.Join(weak, ", "))}
 	}
 	unc, err := geometryCovariance(in, conds)
-	if err != nil || unc == nil {
+	if err != nil {
+		// The readings do not fix the geometry: fewer readings than
+		// unknowns, or an information matrix that is singular. The fit
+		// matches the readings (often exactly) with lines that can be far
+		// from where the conductors run, and no sigma says so; the
+		// windows' currents would be as wrong, with sigmas that leave the
+		// geometry out.
+		return &unresolvedError{err: fmt.Errorf("the sensor layout does not fix where the lines run, though every line's field stands out of the noise (leaving it out raises the chi-square: %s): %s; "+
+			"add sensors across the lines (a second row along them, or more in the row), or hold the geometry with model = \"fixed\"",
+			strings.Join(rises, ", "), unfixedWhy(in, conds, err)), layout: true}
+	}
+	if unc == nil {
 		return nil
 	}
 	var sensors []SensorConfig
@@ -504,6 +521,65 @@ func resolved(in *SolveInput, conds []ConductorConfig) error {
 	}
 	return nil
 }
+
+// unfixedWhy says why the readings of in do not fix the lines conds,
+// whose covariance geometryCovariance refused with err. Sensors in one
+// row crossed by the lines see them in one cross-section: the field of a
+// line has no component along it, so the readings along the lines carry
+// nothing of where they run (only of their tilts), and each sensor gives
+// two readings across the lines (four for AC, real and imaginary parts)
+// for each line's place across and depth, its current and the
+// background across the lines. For DC that count refuses no layout the
+// whole count (3 readings a sensor against 5 unknowns a line and 3 of
+// background) passes, and for AC the two agree; it is named when it
+// refuses, being the one a site's drawing shows.
+func unfixedWhy(in *SolveInput, conds []ConductorConfig, err error) string {
+	why := "the geometry's uncertainty cannot be found (" + err.Error() + "; each line's place across it, bearing and dip, its current, and the background field)"
+	n := len(in.Points)
+	if n < 2 {
+		return why
+	}
+	// The row: the line through the two sensors farthest apart.
+	var a, b [3]float64
+	span := -1.0
+	for i := range in.Points {
+		for j := i + 1; j < n; j++ {
+			if d := norm(sub(in.Points[i], in.Points[j])); d > span {
+				a, b, span = in.Points[i], in.Points[j], d
+			}
+		}
+	}
+	if !(span > 0) {
+		return why
+	}
+	u := unit(sub(b, a))
+	for _, pt := range in.Points {
+		if norm(perp(sub(pt, a), u)) > rowTolerance*span {
+			return why
+		}
+	}
+	for _, c := range conds {
+		if d := unit(c.Direction); norm(d) == 0 || math.Abs(dot(d, u)) > math.Cos(math.Pi/4) {
+			return why // a line along the row rather than across it
+		}
+	}
+	per, bg, lin := 2, 2, 3 // DC: Bx, Bz across; place 2 + current 1 a line
+	if in.Phasors != nil {
+		per, bg, lin = 4, 4, 4
+	}
+	readings, unknowns := per*n, lin*len(conds)+bg
+	if readings > unknowns {
+		return "the sensors lie in one row across the lines; " + why
+	}
+	return fmt.Sprintf("the sensors lie in one row across the lines: their readings along the lines carry nothing of where the lines run, leaving %d readings across them (%d sensors) for %d unknowns "+
+		"(each line's place across the row and depth, its current, and the background across the lines), so that other lines fit them as well; %s", readings, n, unknowns, why)
+}
+
+// rowTolerance is the largest distance of a sensor from the line through
+// the two farthest apart, as a fraction of their distance, for the
+// sensors to be taken as one row (unfixedWhy): a centimetre in a metre,
+// the accuracy of a taped layout.
+const rowTolerance = 0.01
 
 // seededLine fits one line, named name, to the readings of p from plain
 // starts (commissionFromPoints from a point, along start when given, and
