@@ -493,8 +493,9 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 			return nil, err
 		}
 		if headerLine > 0 && format == string(FormatCSV) && numbersOnly(header) {
-			return nil, fileErr(file, nil, "no column for %s: the header line holds numbers (%s), so the file seems to have no header line; give the column names, in the file's order, with a header option (on the command line --header time,x,y,z,bx,by,bz, say)",
-				strings.Join(missing, ", "), columnList(header[:min(len(header), 4)])+map[bool]string{true: ", ...", false: ""}[len(header) > 4])
+			return nil, fileErr(file, nil, "no column for %s: the header line holds numbers (%s), so the file seems to have no header line; give its %d column names, in the file's order, with a header option (on the command line --header %s, say)",
+				strings.Join(missing, ", "), columnList(header[:min(len(header), 4)])+map[bool]string{true: ", ...", false: ""}[len(header) > 4],
+				len(header), headerExample(len(header)))
 		}
 		tried := "none"
 		if len(cfg.mappingText) > 0 {
@@ -1296,4 +1297,28 @@ func numbersOnly(header []string) bool {
 		}
 	}
 	return n >= 2 && 2*n > len(header)
+}
+
+// headerExample is a header option's value for a file of n columns, for
+// the message about a file without a header line: the usual columns
+// (time, x, y, z, bx, by, bz), fewer positions for fewer columns and
+// placeholders (c8, c9, ...) for more, so that the example given names
+// as many columns as the file has (found in review: seven names offered
+// for eight columns, refused as a long row when used).
+func headerExample(n int) string {
+	var names []string
+	switch {
+	case n <= 4:
+		names = []string{"time", "bx", "by", "bz"}
+	case n == 5:
+		names = []string{"time", "x", "bx", "by", "bz"}
+	case n == 6:
+		names = []string{"time", "x", "y", "bx", "by", "bz"}
+	default:
+		names = []string{"time", "x", "y", "z", "bx", "by", "bz"}
+		for i := 8; i <= n; i++ {
+			names = append(names, fmt.Sprintf("c%d", i))
+		}
+	}
+	return strings.Join(names, ",")
 }
