@@ -452,7 +452,7 @@ func referenceLevelWarnings(fits []Fit, origin *Origin) (warn []string, off map[
 			at = fmt.Sprintf(" On a latitude/longitude/height log, up is measured from the origin's height (%.2f m in the log's height datum; the first reading's unless --origin gives another), so up = %g m is height %.2f m there; give --reference-z as the ground's height in that datum minus %.2f m.",
 				origin.H, zref, origin.H+zref, origin.H)
 		}
-		warn = append(warn, fmt.Sprintf("the ground level given with --reference-z, up = %g m, is the sensors' own height: their mean height above it is %s on every traverse, and carried or cart-mounted sensors never run at ground level. Depths and cover are then measured from the sensors, not the ground, and the cover is too large by the sensors' height above the ground; give that height with --sensor-height instead, or the ground's own level with --reference-z.%s",
+		warn = append(warn, fmt.Sprintf("the ground level given with --reference-z, up = %g m, lies at the sensors' own height or within 5 cm of it: their mean height above it is %s on every traverse, and carried or cart-mounted sensors seldom run that close to the ground. If the level is not the ground's, depths and cover are measured from near the sensors, and the cover is too large by the sensors' height above the ground; give that height with --sensor-height instead, or the ground's own level with --reference-z (a sensor dragged or sledged on the ground is the exception: then the level holds).%s",
 			zref, span, at))
 		return warn, nil
 	}

@@ -21,7 +21,7 @@ import (
 // (up = -0.3 m), and one 0.1 m below the sensors (over levelAtSensors, so
 // plainly not the sensors' own), draw no such warning.
 func TestReferenceLevelAtSensors(t *testing.T) {
-	const mark = "is the sensors' own height"
+	const mark = "lies at the sensors' own height or within 5 cm of it"
 	flat := func(e, n float64) float64 { return -0.3 }
 	build := func(z float64, head Document) *Document {
 		t.Helper()
