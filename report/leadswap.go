@@ -40,7 +40,7 @@ import (
 // line's direction sigma over the distance carried), with a current
 // within a factor continuityLevel of it or of this group's own conductor
 // 1 (a fault may take most of the current: 20 A of 25 A beside an 18 A
-// cable) flowing the same way, the other group has a line on this one's
+// cable) whichever way it flows, the other group has a line on this one's
 // conductor 1 track likewise, over continuityReach aside from its own
 // conductor 1, and the lines side by side at the two traverses match
 // better with the lead exchanged than without (swapPick). A group whose
@@ -68,10 +68,10 @@ const swapParallel = 3.0
 
 // swapLine is a usable line of a fit, as leadBySwap compares it.
 type swapLine struct {
-	ok          bool
-	plan        [2]float64
-	cur, signed float64
-	azSigma     float64
+	ok      bool
+	plan    [2]float64
+	cur     float64
+	azSigma float64
 	// turnSigma is the one-sigma angle, radians, by which the line's
 	// direction in space may be off (its azimuth and dip sigmas
 	// combined): carried a distance L, it may pass L times that aside.
@@ -95,7 +95,7 @@ func swapLineOf(s *inverse.SourceEstimate, ac bool) swapLine {
 	if s.Identifiable.Dip && finite(s.DipSigma) && s.DipSigma > 0 {
 		sd = s.DipSigma
 	}
-	return swapLine{ok: true, plan: v, cur: math.Abs(s.Current), signed: s.Current, azSigma: sa,
+	return swapLine{ok: true, plan: v, cur: math.Abs(s.Current), azSigma: sa,
 		turnSigma: math.Hypot(sa, sd) * math.Pi / 180, point: s.Point, dir3: s.Dir}
 }
 
@@ -140,25 +140,19 @@ func (a swapLine) parallelTo(b swapLine) bool {
 // distance l may pass aside so carried: drift), with a current within
 // a factor continuityLevel of l's or of o's (the conductor 1 of m's own
 // group: a fault may take most of a conductor's current, but a line
-// weaker than a quarter of either is no conductor of the two), flowing
-// the same way as l (DC; an AC current is an RMS, its sense in the
-// phase, not asked).
-func (m swapLine) carries(l, o swapLine, ac bool) bool {
+// weaker than a quarter of either is no conductor of the two), whichever
+// way its current flows: a line is followed by its place and depth. A DC
+// current that changes sign between the two traverses (8 A one way, then
+// 25 A the other, where 33 A joins) is still the one conductor; asked to
+// flow the same way, the line was not followed there and conductor 1
+// jumped to the cable beside it with a false 5 A step, both cables said
+// to end (TestSwapCloseCablesOppositeSign).
+func (m swapLine) carries(l, o swapLine) bool {
 	if !m.ok || !l.ok || !m.parallelTo(l) || pointToLine(m.point, l.point, l.dir3) > continuityReach+m.drift(l) {
 		return false
 	}
 	level := func(c float64) bool { return m.cur*continuityLevel >= c && m.cur <= continuityLevel*c }
-	if !level(l.cur) && !(o.ok && level(o.cur)) {
-		return false
-	}
-	if ac {
-		return true
-	}
-	way := m.signed
-	if m.plan[0]*l.plan[0]+m.plan[1]*l.plan[1] < 0 {
-		way = -way
-	}
-	return way*l.signed > 0
+	return level(l.cur) || o.ok && level(o.cur)
 }
 
 // aside is how far line m lies from line l of the same group across the
@@ -170,11 +164,22 @@ func (m swapLine) aside(l swapLine, u [2]float64) float64 {
 }
 
 // swapFree reports whether f's lines may be reordered here: a usable fit
-// whose first line is no pair's, split's or object's.
-func swapFree(f *Fit) bool {
+// whose first line is no pair's, split's or object's. A line beside the
+// first carrying current the other way (Result.Opposed) keeps them in
+// place only where it may be the first's partner core in a go-and-return
+// pair (partnerCandidates: the route follows the pair there). Two cables
+// 1.5-3 m apart at 1.0 and 1.3 m, one carrying current the other way,
+// are no pair: refused for any opposite line, conductor 1 was never
+// exchanged between them and jumped cables (a false 50 A step at 1.5 m,
+// 45 A at 3 m) with both cables said to end, at 10 of 10 seeds
+// (TestSwapCloseCablesOppositeSign).
+func swapFree(f *Fit, ac bool) bool {
 	r := f.Result
 	if r == nil || f.Dipole || f.object != nil || f.sumSplit || f.crossPairs != nil || len(r.Sources) < 2 ||
-		!(r.Status.Converged() || r.Status == inverse.Stalled) || len(r.Opposed) > 0 || len(r.SameWay) > 0 {
+		!(r.Status.Converged() || r.Status == inverse.Stalled) || len(r.SameWay) > 0 {
+		return false
+	}
+	if len(r.Opposed) > 0 && len(partnerCandidates(f, ac)) > 0 {
 		return false
 	}
 	for _, p := range r.Pairs {
@@ -192,7 +197,7 @@ func swapFree(f *Fit) bool {
 // took the two as a split, 18.5 ± 3.1 and 16.3 ± 3.5 A: the neighbours
 // either side resolve them, and the exchange makes the other share
 // conductor 1 (withLead drops the split).
-func splitPartner(f *Fit) int {
+func splitPartner(f *Fit, ac bool) int {
 	r := f.Result
 	sw := sameWayOf(r)
 	if sw == nil || len(r.SameWay) != 1 {
@@ -201,7 +206,7 @@ func splitPartner(f *Fit) int {
 	c, rc := *f, *r
 	rc.SameWay = nil
 	c.Result = &rc
-	if !swapFree(&c) {
+	if !swapFree(&c, ac) {
 		return -1
 	}
 	return sw.Lines[1]
@@ -300,12 +305,12 @@ func swapPickOf(lg, la swapLine, mg, na []indexedLine, ac bool) int {
 	}
 	pick, least := -1, math.NaN()
 	for _, m := range mg {
-		if !m.carries(la, lg, ac) {
+		if !m.carries(la, lg) {
 			continue
 		}
 		xm := m.aside(lg, u)
 		for _, n := range na {
-			if !n.carries(lg, la, ac) {
+			if !n.carries(lg, la) {
 				continue
 			}
 			xn := n.aside(la, u)
@@ -374,7 +379,7 @@ func leadBySwap(fits []Fit, ac bool) {
 	// the change: regression review rg17b).
 	splits := 0
 	for _, i := range used {
-		if splitPartner(&fits[i]) >= 0 {
+		if splitPartner(&fits[i], ac) >= 0 {
 			splits++
 		}
 	}
@@ -573,7 +578,7 @@ func leadBySwap(fits []Fit, ac bool) {
 			}
 		}
 		pick := -1
-		if swapFree(g) || splitsResolved && swap > 0 && swap == splitPartner(g) {
+		if swapFree(g, ac) || splitsResolved && swap > 0 && swap == splitPartner(g, ac) {
 			pick = swap
 		}
 		if pick < 0 {

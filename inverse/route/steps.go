@@ -686,6 +686,20 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64, bs 
 		if down > up {
 			verb, why = "rises", "current joining the conductor there (a bond, a tee or another source)"
 		}
+		// A DC current of one sign before and the other past it flows
+		// away from there both ways (it joins there) or toward it from
+		// both ways (it leaves there): said as a change of sign, since
+		// "rises" or "falls" by the whole change reads as a change of
+		// size in one direction of flow.
+		turn := ""
+		if !a.AC && pl.before*pl.after < 0 && math.Abs(pl.before) > set.stepK()*pl.sigmaBefore &&
+			math.Abs(pl.after) > set.stepK()*pl.sigmaAfter {
+			first, second, along, fed = a, b, "", ""
+			verb, why, turn = "rises", "current joining the conductor there (a bond, a tee or another source)", "away from there both ways"
+			if pl.before > 0 {
+				verb, why, turn = "falls", "current leaving the conductor there", "toward there from both ways"
+			}
+		}
 		what := "current"
 		if a.PairNet || b.PairNet {
 			// A go-and-return pair's net current is the current that does
@@ -719,6 +733,10 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64, bs 
 		kind, severity := KindCurrentStep, SeverityWarning
 		msg := fmt.Sprintf("%s %s by %s A between %s (chainage %.1f m) and %s (%.1f m)%s: %s%s",
 			what, verb, pm(math.Abs(size), sigma), label(first), first.Chainage, label(second), second.Chainage, along, why, fed)
+		if turn != "" && what == "current" {
+			msg = fmt.Sprintf("current changes sign between %s (chainage %.1f m) and %s (%.1f m), a change of %s A: it flows %s, %s",
+				label(first), first.Chainage, label(second), second.Chainage, pm(math.Abs(size), sigma), turn, why)
+		}
 		// A change under MinStep of the current is information, not a step
 		// (with the trend disabled every raw difference is a step, as
 		// asked).
