@@ -734,8 +734,8 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64, bs 
 		msg := fmt.Sprintf("%s %s by %s A between %s (chainage %.1f m) and %s (%.1f m)%s: %s%s",
 			what, verb, pm(math.Abs(size), sigma), label(first), first.Chainage, label(second), second.Chainage, along, why, fed)
 		if turn != "" && what == "current" {
-			msg = fmt.Sprintf("current changes sign between %s (chainage %.1f m) and %s (%.1f m), a change of %s A: it flows %s, %s",
-				label(first), first.Chainage, label(second), second.Chainage, pm(math.Abs(size), sigma), turn, why)
+			msg = fmt.Sprintf("current changes sign between %s (chainage %.1f m) and %s (%.1f m), a change of %s A: it flows %s, %s%s",
+				label(first), first.Chainage, label(second), second.Chainage, pm(math.Abs(size), sigma), turn, why, fed)
 		}
 		// A change under MinStep of the current is information, not a step
 		// (with the trend disabled every raw difference is a step, as
