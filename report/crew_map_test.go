@@ -350,9 +350,11 @@ func TestGeoJSONDepthSaysItsReference(t *testing.T) {
 // station_scatter_depth_m on conductor 1's rows, which are the route's
 // between-station scatter, recomputed here from the rows' own currents
 // and depths by its definition (Route.StationScatterCurrent: 1.4826 times
-// the median absolute difference of successive used stations over
-// sqrt(2), pairs across the reported step left out; the 1.4826 of
-// Rousseeuw and Croux, J. Am. Stat. Assoc. 88(424), 1993); route.geojson's
+// the median absolute departure of each used station from the line
+// through its used neighbours, over sqrt(1 + w^2 + (1-w)^2) with w from
+// the chainages, triples across the reported step left out; the scaling
+// of Gasser, Sroka and Jennen-Steinmetz, Biometrika 73(3), 1986, and the
+// 1.4826 of Rousseeuw and Croux, J. Am. Stat. Assoc. 88(424), 1993); route.geojson's
 // route and conductor Points carry the same.
 func TestCSVFitStatusAndRealisticSpread(t *testing.T) {
 	// The columns before this change, in their order.
@@ -384,9 +386,7 @@ func TestCSVFitStatusAndRealisticSpread(t *testing.T) {
 	if len(steps) == 0 {
 		t.Fatal("fixture: no current step")
 	}
-	var dI, dD []float64
-	var prevI, prevD, prevC float64
-	have := false
+	var cur, dep, ch []float64
 	var cells [][2]string
 	for _, r := range readCSV(t, d) {
 		if r["conductor"] != "1" {
@@ -396,24 +396,35 @@ func TestCSVFitStatusAndRealisticSpread(t *testing.T) {
 		if r["used"] != "true" {
 			continue
 		}
-		cur, _ := strconv.ParseFloat(r["current_a"], 64)
-		dep, _ := strconv.ParseFloat(r["depth_m"], 64)
-		ch, _ := strconv.ParseFloat(r["chainage_m"], 64)
-		cur = math.Abs(cur) // each row's current is signed along its own azimuth
-		if have && !slices.ContainsFunc(steps, func(s [2]float64) bool { return prevC < s[1] && ch > s[0] }) {
-			dI = append(dI, math.Abs(cur-prevI))
-			dD = append(dD, math.Abs(dep-prevD))
-		}
-		prevI, prevD, prevC, have = cur, dep, ch, true
+		i, _ := strconv.ParseFloat(r["current_a"], 64)
+		z, _ := strconv.ParseFloat(r["depth_m"], 64)
+		c, _ := strconv.ParseFloat(r["chainage_m"], 64)
+		// Each row's current is signed along its own azimuth.
+		cur, dep, ch = append(cur, math.Abs(i)), append(dep, z), append(ch, c)
 	}
-	scale := 1.4826 / math.Sqrt2
+	var dI, dD []float64
+	for j := 1; j+1 < len(ch); j++ {
+		if slices.ContainsFunc(steps, func(s [2]float64) bool { return ch[j-1] < s[1] && ch[j+1] > s[0] }) {
+			continue
+		}
+		w := (ch[j+1] - ch[j]) / (ch[j+1] - ch[j-1])
+		k := math.Sqrt(1 + w*w + (1-w)*(1-w))
+		dI = append(dI, math.Abs(cur[j]-w*cur[j-1]-(1-w)*cur[j+1])/k)
+		dD = append(dD, math.Abs(dep[j]-w*dep[j-1]-(1-w)*dep[j+1])/k)
+	}
+	if len(dI) < MinScatterTriples {
+		t.Fatalf("fixture: %d triples", len(dI))
+	}
+	scale := 1.4826
 	wantI, wantD := scale*median(dI), scale*median(dD)
 	if len(cells) == 0 {
 		t.Fatal("no conductor-1 rows")
 	}
 	// The rows' currents and depths are written to 1e-4 (two digits past
-	// their sigmas' leading ones): a difference of two is off by up to
-	// 1e-4, and the scatter by up to scale times that.
+	// their sigmas' leading ones), each off by up to 5e-5: a departure
+	// from the line through two neighbours is off by up to (1 + w + 1 - w)
+	// 5e-5 = 1e-4 before its scaling by at least sqrt(1.5), and the
+	// scatter by up to scale times that.
 	tol := scale * 1e-4
 	for _, c := range cells {
 		gi, err1 := strconv.ParseFloat(c[0], 64)

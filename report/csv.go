@@ -42,7 +42,7 @@ import (
 // and depth along that conductor's route (Route.StationScatterCurrent and
 // StationScatterDepth, as results.json names them; cover's is depth's),
 // which the fits' sigmas, counting the reading noise alone, understate;
-// empty where the route has too few pairs of used stations to give one.
+// empty where the route has too few triples of used stations to give one.
 var csvHeader = []string{
 	"chainage_m", "route_chainage_m", "group", "source", "conductor", "kind", "signal",
 	"current_a", "current_sigma_a", "phase_deg", "phase_sigma_deg",

@@ -533,21 +533,28 @@ type Route struct {
 	// between-station scatter of current (A) and of depth (m) along the
 	// route among used stations, a realistic one-sigma spread of a single
 	// station's estimate that, unlike the fits' sigmas, includes the
-	// error of the model:
+	// error of the model. Each run of three successive used stations
+	// a, b, c gives b's departure from the straight line through a and c,
+	// scaled to one station's spread:
 	//
-	//	scatter = 1.4826 * median |x(i+1) - x(i)| / sqrt(2)
+	//	e = |x(b) - (w x(a) + (1-w) x(c))| / sqrt(1 + w^2 + (1-w)^2)
+	//	w = (chainage(c) - chainage(b)) / (chainage(c) - chainage(a))
+	//	scatter = 1.4826 * median e
 	//
-	// over successive used stations, leaving out pairs that straddle a
-	// reported current step (for current and depth alike). 1.4826 makes
-	// the median absolute deviation a consistent estimator of a normal
-	// standard deviation (Rousseeuw & Croux, J. Am. Stat. Assoc.
-	// 88(424):1273-1283, 1993); sqrt(2) turns the spread of a difference
-	// of two stations into that of one. Nil with fewer than
-	// MinScatterPairs pairs. StationScatterPairs is the number of pairs
-	// used.
+	// leaving out triples that straddle a reported current step (for
+	// current and depth alike). The line through the neighbours takes
+	// out the route's own trend (a current falling along a protected
+	// pipe, a conductor deepening), which differences of two stations
+	// counted as error. sqrt(1 + w^2 + (1-w)^2) is the standard deviation
+	// of the departure under independent errors of unit sigma (Gasser,
+	// Sroka & Jennen-Steinmetz, Biometrika 73(3):625-633, 1986); 1.4826
+	// makes the median absolute deviation a consistent estimator of a
+	// normal standard deviation (Rousseeuw & Croux, J. Am. Stat. Assoc.
+	// 88(424):1273-1283, 1993). Nil with fewer than MinScatterTriples
+	// triples. StationScatterTriples is the number of triples used.
 	StationScatterCurrent *float64 `json:"station_scatter_current_a,omitempty"`
 	StationScatterDepth   *float64 `json:"station_scatter_depth_m,omitempty"`
-	StationScatterPairs   int      `json:"station_scatter_pairs,omitempty"`
+	StationScatterTriples int      `json:"station_scatter_triples,omitempty"`
 	// PairNet is true when conductor 1 is a go-and-return pair (two
 	// cores side by side carrying opposite currents, resolved or not):
 	// a station where the pair was found gives its centre and depth,

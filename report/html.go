@@ -1026,8 +1026,18 @@ func (v *view) summarise() {
 			}
 		}
 		if r.StationScatterCurrent != nil && r.StationScatterDepth != nil {
-			v.Scatter = fmt.Sprintf("Realistic spread: neighbouring stations scatter by %s A in current (%s of the median current) and %s m in depth, one standard deviation (robust, from %d pairs of successive stations, leaving out current steps); expect a single station's current and depth to be off by up to about that much (the scatter also holds any real change between neighbouring stations), often far more than the fits' own ± figures.",
-				sigText(*r.StationScatterCurrent), pct(*r.StationScatterCurrent, medianAbsCurrent(r)), sigText(*r.StationScatterDepth), r.StationScatterPairs)
+			// Its size beside the fits' own sigmas, in numbers: the
+			// summary said "often far more than the fits' own ±
+			// figures" where the spread was the route's real fall in
+			// current and the fits' sigmas were honest (found in
+			// review).
+			vsFits := ""
+			if si, sd := medianUsedSigmas(r); si > 0 && sd > 0 {
+				vsFits = fmt.Sprintf(", %.1f and %.1f times the fits' median ± figures of %s A and %s m",
+					*r.StationScatterCurrent/si, *r.StationScatterDepth/sd, sigText(si), sigText(sd))
+			}
+			v.Scatter = fmt.Sprintf("Realistic spread: stations scatter about the line through their neighbours by %s A in current (%s of the median current) and %s m in depth, one standard deviation of a single station (robust, from %d runs of three successive stations, leaving out current steps)%s; expect a single station's current and depth to be off by up to about that much (the scatter also holds any real change that is not steady over two intervals, such as a bend or a sudden change of depth).",
+				sigText(*r.StationScatterCurrent), pct(*r.StationScatterCurrent, medianAbsCurrent(r)), sigText(*r.StationScatterDepth), r.StationScatterTriples, vsFits)
 			v.Headline = append(v.Headline, v.Scatter)
 		}
 		for _, t := range d.Conductors {
@@ -1629,6 +1639,19 @@ func medianAbsCurrent(r *Route) float64 {
 		}
 	}
 	return median(a)
+}
+
+// medianUsedSigmas is the median current sigma (at the first walk's
+// level, as medianAbsCurrent) and depth sigma of route r's used stations.
+func medianUsedSigmas(r *Route) (current, depth float64) {
+	var si, sd []float64
+	for _, s := range r.Stations {
+		if s.Used {
+			_, sig := s.levelCurrent()
+			si, sd = append(si, sig), append(sd, s.DepthSigma)
+		}
+	}
+	return median(si), median(sd)
 }
 
 // depthRangeWords words the depths lo to hi below the depth reference of

@@ -159,11 +159,15 @@ func TestReferenceChi2Estimated(t *testing.T) {
 
 // TestStationScatter checks the between-station scatter on stations with
 // a known answer: currents alternating 10.0 and 10.3 A, depths 1.00 and
-// 1.02 m, so every successive difference is 0.3 A and 0.02 m and the
-// scatter is 1.4826 * 0.3 / sqrt(2) A and 1.4826 * 0.02 / sqrt(2) m
-// (Rousseeuw & Croux 1993, the normal-consistent MAD). A current step
-// (+5 A between the 6th and 7th station) and a station not used (wild
-// values) must not enter it.
+// 1.02 m, 5 m apart, so every station departs from the line through its
+// neighbours by 0.3 A and 0.02 m, and the scatter is 1.4826 * 0.3 /
+// sqrt(1.5) A and 1.4826 * 0.02 / sqrt(1.5) m (the departure's standard
+// deviation at even spacing is sqrt(1 + 1/4 + 1/4) station sigmas,
+// Gasser, Sroka & Jennen-Steinmetz, Biometrika 73(3), 1986; 1.4826 the
+// normal-consistent MAD of Rousseeuw & Croux, 1993). A current step (+5 A
+// between the 6th and 7th station) and a station not used (wild values)
+// must not enter it; the triples across the gap it leaves are unevenly
+// spaced.
 func TestStationScatter(t *testing.T) {
 	var r Route
 	for i := range 12 {
@@ -179,30 +183,38 @@ func TestStationScatter(t *testing.T) {
 		}
 		r.Stations = append(r.Stations, s)
 	}
-	// Pairs: 0-1 ... 4-5, (5-6 straddles the step), 6-7, 7-8, (9 unused:
-	// 8-10 is one pair), 8-10 differs by 0 A and 0 m, 10-11.
+	// Triples: 0-1-2 ... 3-4-5, (4-5-6 and 5-6-7 straddle the step),
+	// 6-7-8, and across unused 9: 7-8-10 (35, 40, 50 m: 8 departs by
+	// -0.2 A from 2/3 of 7's 15.3 and 1/3 of 10's 15.0, scaled by
+	// sqrt(1 + 4/9 + 1/9)) and 8-10-11 likewise.
 	r.setScatter([][2]float64{{25, 30}})
 	if r.StationScatterCurrent == nil || r.StationScatterDepth == nil {
 		t.Fatal("no scatter")
 	}
-	if r.StationScatterPairs != 9 {
-		t.Errorf("%d pairs, want 9", r.StationScatterPairs)
+	if r.StationScatterTriples != 7 {
+		t.Errorf("%d triples, want 7", r.StationScatterTriples)
 	}
-	// Median of eight 0.3 A differences and one 0 A one: 0.3 A.
-	wantI, wantD := 1.4826*0.3/math.Sqrt2, 1.4826*0.02/math.Sqrt2
+	// Median of five 0.3/sqrt(1.5) = 0.245 A departures and two
+	// 0.2/sqrt(14/9) = 0.160 A ones: 0.245 A.
+	wantI, wantD := 1.4826*0.3/math.Sqrt(1.5), 1.4826*0.02/math.Sqrt(1.5)
 	if math.Abs(*r.StationScatterCurrent-wantI) > 1e-4*wantI || math.Abs(*r.StationScatterDepth-wantD) > 1e-4*wantD {
 		t.Errorf("scatter %.6f A, %.6f m; want %.6f A, %.6f m", *r.StationScatterCurrent, *r.StationScatterDepth, wantI, wantD)
 	}
-	// Too few pairs: no scatter.
-	r.Stations = r.Stations[:MinScatterPairs]
+	// Too few triples: no scatter; just enough: the scatter.
+	r.Stations = r.Stations[:MinScatterTriples+1]
 	r.setScatter(nil)
-	if r.StationScatterCurrent != nil || r.StationScatterPairs != 0 {
-		t.Errorf("scatter from %d pairs, want none below %d", MinScatterPairs-1, MinScatterPairs)
+	if r.StationScatterCurrent != nil || r.StationScatterTriples != 0 {
+		t.Errorf("scatter from %d triples, want none below %d", MinScatterTriples-1, MinScatterTriples)
+	}
+	r.Stations = append(r.Stations, Station{Key: "last", Chainage: 5 * float64(len(r.Stations)), Current: 10.3, Depth: 1.02, Used: true})
+	r.setScatter(nil)
+	if r.StationScatterCurrent == nil || r.StationScatterTriples != MinScatterTriples {
+		t.Errorf("scatter %v from %d triples, want one from %d", r.StationScatterCurrent, r.StationScatterTriples, MinScatterTriples)
 	}
 }
 
 // TestStationScatterBuild: along the Kestrel Moor fixture (eight stations,
-// one current step) the scatter comes from the six pairs that do not
+// one current step) the scatter comes from the four triples that do not
 // straddle the step, and it is in the document's JSON, with the note that
 // the fits' sigmas count the reading noise only.
 func TestStationScatterBuild(t *testing.T) {
@@ -211,8 +223,8 @@ func TestStationScatterBuild(t *testing.T) {
 		t.Fatal(err)
 	}
 	r := d.Route
-	if r.StationScatterPairs != 6 || r.StationScatterCurrent == nil || *r.StationScatterCurrent > 0.2 {
-		t.Fatalf("scatter %v A from %d pairs; want six pairs and well under the 0.6 A step", r.StationScatterCurrent, r.StationScatterPairs)
+	if r.StationScatterTriples != 4 || r.StationScatterCurrent == nil || *r.StationScatterCurrent > 0.2 {
+		t.Fatalf("scatter %v A from %d triples; want four triples and well under the 0.6 A step", r.StationScatterCurrent, r.StationScatterTriples)
 	}
 	var buf bytes.Buffer
 	if err := WriteJSON(&buf, d); err != nil {
@@ -227,7 +239,7 @@ func TestStationScatterBuild(t *testing.T) {
 	if err := WriteHTML(&buf, d); err != nil {
 		t.Fatal(err)
 	}
-	for _, want := range []string{"Realistic spread: neighbouring stations scatter by", "count the reading noise only"} {
+	for _, want := range []string{"Realistic spread: stations scatter about the line through their neighbours by", "count the reading noise only"} {
 		if !strings.Contains(buf.String(), want) {
 			t.Errorf("the HTML lacks %q", want)
 		}
