@@ -90,7 +90,7 @@ func TestBaseNoiseInSigmas(t *testing.T) {
 		if !warned {
 			t.Errorf("seed %d: no warning of the base's noise; warnings: %q", seed, doc.Warnings)
 		}
-		if doc.BaseStation == nil || !strings.Contains(doc.BaseStation.Summary, "widened the fits' sigmas") {
+		if doc.BaseStation == nil || !strings.Contains(doc.BaseStation.Summary, "widened the fits' uncertainties") {
 			t.Errorf("seed %d: the base summary does not give the widening: %+v", seed, doc.BaseStation)
 		}
 		truth := map[string]simulate.Crossing{}
