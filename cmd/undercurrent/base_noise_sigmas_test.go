@@ -85,7 +85,7 @@ func TestBaseNoiseInSigmas(t *testing.T) {
 		}](t, "--count", "1", "--group-by", "group", "--reference-z", "0", "--base", base, log)
 		warned := false
 		for _, w := range doc.Warnings {
-			warned = warned || strings.Contains(w, "its own noise") && strings.Contains(w, "sigmas were widened")
+			warned = warned || strings.Contains(w, "its own noise") && strings.Contains(w, "uncertainties were widened")
 		}
 		if !warned {
 			t.Errorf("seed %d: no warning of the base's noise; warnings: %q", seed, doc.Warnings)
