@@ -694,7 +694,7 @@ func DemodulateColumns(c *Columns, set *DemodSettings) (*DemodResult, error) {
 		}
 	}
 	if turn := 360 * res.FreqSigma * span; !ds.PhaseChecked && turn > MaxTurnDegrees {
-		res.Warnings = append(res.Warnings, fmt.Sprintf("the estimated frequency's sigma, %.2g Hz, alone turns the phase by up to %.0f° across the longest group (%s%.3g s): its phasors may not be those of one steady field; give the frequency if it is known",
+		res.Warnings = append(res.Warnings, fmt.Sprintf("the estimated frequency's uncertainty, %.2g Hz, alone turns the phase by up to %.0f° across the longest group (%s%.3g s): its phasors may not be those of one steady field; give the frequency if it is known",
 			res.FreqSigma, turn, groupLabel(spanGroup), span))
 	}
 	if d.outBand > 0 {
@@ -1854,7 +1854,7 @@ func estimateFreq(c *Columns, runs []run, dt float64, ds *DemodSettings) (f, sig
 	if set.Window == 0 {
 		set.Window = 10 / f0
 	}
-	fallback := "from the spectrum's peak only (%s), which walking over conductors of different phase moves by up to a tenth of a hertz, and with no sigma: give the frequency if it is known"
+	fallback := "from the spectrum's peak only (%s), which walking over conductors of different phase moves by up to a tenth of a hertz, and with no uncertainty: give the frequency if it is known"
 	// A window whose phase turns as the sensor walks has more than one
 	// stationary point of its frequency fit, and which it reaches depends
 	// on the start (219 of the demo's 1550 windows moved by up to 0.07 Hz
@@ -1891,7 +1891,7 @@ func estimateFreq(c *Columns, runs []run, dt float64, ds *DemodSettings) (f, sig
 	case est.Still:
 		note = fmt.Sprintf("from %d windows", est.Windows)
 	default:
-		note = fmt.Sprintf("from %d windows all walked one way, where the walk over conductors of different phase may move it by thousandths of a hertz beyond its sigma: give the frequency if it is known", est.Windows)
+		note = fmt.Sprintf("from %d windows all walked one way, where the walk over conductors of different phase may move it by thousandths of a hertz beyond its uncertainty: give the frequency if it is known", est.Windows)
 	}
 	return est.Freq, est.Sigma, note, nil
 }

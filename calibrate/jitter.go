@@ -56,7 +56,7 @@ func StampJitter(s *ingest.Samples, freq float64) (*ingest.TimeJitter, string) {
 	cost := ""
 	if freq > 0 {
 		w := 2 * math.Pi * freq * tj.Scatter
-		cost = fmt.Sprintf(" (%.2g° of phase at %g Hz): a sine fitted at them loses a share of its amplitude, about 1 - exp(-(2π f σ)²/2) = %.2g%%, and its phase is off by about 360·f·σ/sqrt(N) over the N readings of a group, which the fit counts only in part. The currents were raised by that share and each group's phase sigmas widened by that error (phase differences between conductors keep their sigmas)",
+		cost = fmt.Sprintf(" (%.2g° of phase at %g Hz): a sine fitted at them loses a share of its amplitude, about 1 - exp(-(2π f σ)²/2) = %.2g%%, and its phase is off by about 360·f·σ/sqrt(N) over the N readings of a group, which the fit counts only in part. The currents were raised by that share and each group's phase uncertainties widened by that error (phase differences between conductors keep their sigmas)",
 			360*freq*tj.Scatter, freq, 100*(1-math.Exp(-w*w/2)))
 	}
 	return tj, fmt.Sprintf("the time stamps scatter by %.3g s RMS (up to %.3g s) about a steady %.6g Hz clock (%.6g s sample interval), far beyond their resolution, with successive steps between rows anticorrelated (%.2f; -0.5 for errors of the written stamps alone, 0 for a sampling whose intervals really vary)%s; re-timing them on the clock's line would place every phase no better. Write the stamps from the sampling clock",

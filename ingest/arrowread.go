@@ -927,6 +927,6 @@ func (r *arrowReader) notePositionSteps() {
 			}
 			what = fmt.Sprintf("at %.7g (its largest value) they step by %.2g m", nc.max, m)
 		}
-		pl.warn("%s: column %s is stored as %s floats: %s, coarser than the %g m a position needs: each reading's position is rounded by up to half a step, much alike along a traverse, which biases every traverse's fit the same way and beyond its sigmas; store it as 64-bit floats, or subtract a site offset from projected coordinates before storing them", r.name, col, kind, what, positionStepLimit)
+		pl.warn("%s: column %s is stored as %s floats: %s, coarser than the %g m a position needs: each reading's position is rounded by up to half a step, much alike along a traverse, which biases every traverse's fit the same way and beyond its uncertainties; store it as 64-bit floats, or subtract a site offset from projected coordinates before storing them", r.name, col, kind, what, positionStepLimit)
 	}
 }

@@ -133,8 +133,8 @@ func linesMiss(p *Problem, res *Result, floor float64) string {
 	if !(q > lineMissFactor) {
 		return ""
 	}
-	return fmt.Sprintf("%s: the residual, %.3g nT RMS per degree of freedom, is %.3g times the readings' noise floor (%.3g nT, from differences of successive readings), more than the %g that noise reaches: the model does not explain the readings (a conductor, tee, bend or magnetised object not fitted, or noise drifting along the readings), so the sigmas are lower bounds and the estimates may be biased beyond them",
-		LinesMissNote, res.Sigma, q, floor, float64(lineMissFactor))
+	return fmt.Sprintf("%s: the fit misses the readings by %.3g times their noise floor, more than the %g that noise reaches (residual %.3g nT RMS per degree of freedom; floor %.3g nT, from differences of successive readings): the model does not explain the readings (a conductor, tee, bend or magnetised object not fitted, or noise drifting along the readings), so the uncertainties are lower bounds and the estimates may be off by more than them",
+		LinesMissNote, q, float64(lineMissFactor), res.Sigma, floor)
 }
 
 // heldAtFloor reports whether res, fitted with angles the caller held, explains the
@@ -198,7 +198,7 @@ func callerHoldRejected(p *Problem, set *Settings, res *Result) {
 			break
 		}
 	}
-	res.Notes = append(res.Notes, fmt.Sprintf("%s: holding %s (Settings) raises chi-square by %.3g over the fit of %d line(s) with the angles free (more than %.3g, the 99.73%% point for the angles held)%s; the current and position are biased beyond their sigmas",
+	res.Notes = append(res.Notes, fmt.Sprintf("%s: holding %s (Settings) fits the readings clearly worse than leaving the angles free (chi-square higher by %.3g over the fit of %d line(s) with the angles free; more than %.3g, the 99.73%% point for the angles held)%s; the current and position are off by more than their uncertainties say",
 		HeldAnglesRejectedNote, strings.Join(held, " and "), d, lines, lim, freeAt))
 }
 
@@ -309,7 +309,7 @@ func fitLinesFloor(p *Problem, set *Settings, wantFloor bool, floor *float64) (*
 		// traverse was held so and read 24.6 ± 2.2 A (4.4 sigma high), where
 		// the free fit gives 16.7 ± 5.3 A at 135 ± 25 degrees.
 		if d, lim, ok := holdRejected(res, res2); ok {
-			res.Notes = append(res.Notes, fmt.Sprintf("%s (%s), but holding them perpendicular to it and horizontal raises chi-square by %.3g (more than %.3g, the 99.73%% point for the angles held): the angles are fitted, and their sigmas and those of what depends on them are approximate (linearised over a wide range)", AnglesApproximateNote, why, d, lim))
+			res.Notes = append(res.Notes, fmt.Sprintf("%s (%s), but holding them perpendicular to it and horizontal fits the readings clearly worse (chi-square higher by %.3g; more than %.3g, the 99.73%% point for the angles held): the angles are fitted, and their uncertainties and those of what depends on them are approximate (linearised over a wide range)", AnglesApproximateNote, why, d, lim))
 			res.Starts += g.starts
 			return res, nil
 		}
@@ -330,14 +330,14 @@ func fitLinesFloor(p *Problem, set *Settings, wantFloor bool, floor *float64) (*
 		// beyond the end of a 24 m traverse, read 24.6 ± 2.2 A held; a false
 		// "current joining" followed), and neither fit is to be used.
 		if d, lim, ok := holdRejected(res, res2); ok {
-			res2.Notes = append(res2.Notes, fmt.Sprintf("%s: holding them raises chi-square by %.3g over the fit with them free (more than %.3g, the 99.73%% point for the angles held), so the line does not cross the traverse square to it and level; its current and position are biased beyond their sigmas (a conductor beyond the traverse's end, or crossing it obliquely: survey across it there)",
+			res2.Notes = append(res2.Notes, fmt.Sprintf("%s: holding them fits the readings clearly worse than leaving them free (chi-square higher by %.3g; more than %.3g, the 99.73%% point for the angles held), so the line does not cross the traverse square to it and level; its current and position are off by more than their uncertainties say (a conductor beyond the traverse's end, or crossing it obliquely: survey across it there)",
 				HeldAnglesRejectedNote, d, lim))
 		} else if len(res2.Sources) > 0 && slices.Contains(res2.Sources[0].Notes, EdgeOfSearchNote) {
 			// Nor is a held fit whose line has run to the edge of the search:
 			// the readings would put it further out still (beside the same
 			// cable beyond a traverse's end, read 19.9 ± 2.1 A, 2.3 sigma high,
 			// 29 m from the readings' centre).
-			res2.Notes = append(res2.Notes, HeldAnglesRejectedNote+": with them held the line runs to the edge of the search region, so the line does not cross the traverse square to it and level; its current and position are biased beyond their sigmas (a conductor beyond the traverse's end, or crossing it obliquely: survey across it there)")
+			res2.Notes = append(res2.Notes, HeldAnglesRejectedNote+": with them held the line runs to the edge of the search region, so the line does not cross the traverse square to it and level; its current and position are off by more than their uncertainties say (a conductor beyond the traverse's end, or crossing it obliquely: survey across it there)")
 		}
 	}
 	return res2, nil
@@ -514,7 +514,7 @@ func (f *fitter) run() (*Result, error) {
 					// kept is known: a count passed over for its angles
 					// had been counted as reported (the note read "the
 					// 2 line(s) reported" over a fit of one line).
-					unresolved = fmt.Sprintf("%s: %d lines lower the criterion by %.3g (%s), but not every current is resolved; the readings depart from the",
+					unresolved = fmt.Sprintf("%s: %d lines fit the readings better, but not every current is resolved (information criterion lower by %.3g; %s); the readings depart from the",
 						UnresolvedLinesNote, k, gain, sc.Rejected)
 				}
 			}

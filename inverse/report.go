@@ -1149,7 +1149,7 @@ func (f *fitter) report(c *candidate, scores []ModelScore) (*Result, error) {
 		// A chi-square far above its degrees of freedom says the model or the noise
 		// level is wrong; the sigmas then understate the uncertainty.
 		if z := (su.chi2 - float64(su.dof)) / math.Sqrt(2*float64(su.dof)); z > 5 {
-			r.Notes = append(r.Notes, fmt.Sprintf("chi-square %.1f for %d degrees of freedom: the model does not explain the readings to the stated noise", su.chi2, su.dof))
+			r.Notes = append(r.Notes, fmt.Sprintf("the model does not explain the readings to the stated noise (chi-square %.1f for %d degrees of freedom)", su.chi2, su.dof))
 		}
 	}
 	if f.set.Robust {
@@ -1230,7 +1230,7 @@ func (f *fitter) markKept(r *Result, gain float64) {
 		}
 		cur := fmt.Sprintf("%.3g %s", math.Abs(e.Current), unit)
 		if e.Identifiable.Current {
-			cur = fmt.Sprintf("%.3g ± %.2g %s, within %.3g sigma of zero", math.Abs(e.Current), e.CurrentSigma, unit, k)
+			cur = fmt.Sprintf("%.3g ± %.2g %s, within %.3g times its uncertainty of zero", math.Abs(e.Current), e.CurrentSigma, unit, k)
 		}
 		// The line's other notes speak of quantities the readings do not
 		// fix (its azimuth at the search bound, a weak current, its current
@@ -1241,7 +1241,7 @@ func (f *fitter) markKept(r *Result, gain float64) {
 		e.Identifiable = Identifiable{}
 		e.CurrentSigma, e.PhaseSigma, e.RelativePhaseSigma = 0, 0, 0
 		e.DepthSigma, e.OffsetSigma, e.AzimuthSigma, e.DipSigma = 0, 0, 0, 0
-		r.Notes = append(r.Notes, fmt.Sprintf("%s (line %d): without it the fit misses the readings' noise, and with it the criterion falls by %.3g and the fit comes near the noise", UnresolvedKeptNote, i+1, gain))
+		r.Notes = append(r.Notes, fmt.Sprintf("%s (line %d): without it the fit misses the readings' noise, and with it the fit comes near the noise (information criterion lower by %.3g)", UnresolvedKeptNote, i+1, gain))
 	}
 }
 

@@ -169,7 +169,7 @@ func (f *fitter) serialCount(c, fewer *candidate) string {
 	if fall/F > penalty {
 		return ""
 	}
-	return fmt.Sprintf("%s (lag-1 autocorrelation %.2f): counted as %.0f independent readings of %d, the criterion does not fall", SerialNotePrefix, rho, ne, n)
+	return fmt.Sprintf("%s: the %d readings are worth only about %.0f independent ones, and counted so the further line does not improve the fit enough to keep (lag-1 autocorrelation %.2f; information criterion not lower)", SerialNotePrefix, n, ne, rho)
 }
 
 // serialMaxOverFloor is the most a fit's RMS residual may exceed the
@@ -193,10 +193,10 @@ const SerialNotePrefix = "residuals correlated from reading to reading"
 func serialNote(rho, f, lo, hi float64) string {
 	others := ""
 	if hi > lo*1.1 {
-		others = fmt.Sprintf(", the sources' other sigmas %.2g-%.2g times, each by how its signature along the traverse weighs the correlation", math.Sqrt(lo), math.Sqrt(hi))
+		others = fmt.Sprintf(", the sources' other uncertainties %.2g-%.2g times, each by how its signature along the traverse weighs the correlation", math.Sqrt(lo), math.Sqrt(hi))
 	}
-	return fmt.Sprintf("%s (lag-1 autocorrelation %.2f along the traverse): the readings count as fewer independent ones, and the current's sigma is widened %.2g times%s (slow drift, sensor tilt wander, traffic, mains aliased into a slow log, or a model that misses part of the field)",
-		SerialNotePrefix, rho, math.Sqrt(f), others)
+	return fmt.Sprintf("%s: the readings count as fewer independent ones, and the current's uncertainty is widened %.2g times%s (lag-1 autocorrelation %.2f along the traverse; slow drift, sensor tilt wander, traffic, mains aliased into a slow log, or a model that misses part of the field)",
+		SerialNotePrefix, math.Sqrt(f), others, rho)
 }
 
 // serialWidening returns, from the variance factors vf of the parameters

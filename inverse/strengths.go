@@ -215,7 +215,7 @@ func FitStrengths(p *Problem, sources []Source, set *Settings) (*Result, error) 
 	}
 	if r.Sigma == 0 {
 		r.StrengthSigmas = nil
-		r.Notes = append(r.Notes, "no degrees of freedom to estimate the noise and Problem.Sigma is zero: uncertainties are not available")
+		r.Notes = append(r.Notes, "too few readings to estimate the noise (no degrees of freedom) and Problem.Sigma is zero: uncertainties are not available")
 		for i := range r.Sources {
 			r.Sources[i].Identifiable = Identifiable{}
 		}
@@ -269,8 +269,8 @@ func heldMiss(p *Problem, sv *survey, res []float64, rss float64, dof int) strin
 	if !(rms > heldMissFactor*floor) {
 		return ""
 	}
-	return fmt.Sprintf("%s: the residual, %.3g nT RMS per degree of freedom, is %.3g times the readings' noise floor (%.3g nT, %s), more than the %g that noise allows: a conductor lies elsewhere than the geometry given, or one is missing from it; the strengths and their sigmas hold only for the geometry given, not for the conductors",
-		HeldGeometryMissNote, rms, rms/floor, floor, from, float64(heldMissFactor))
+	return fmt.Sprintf("%s: the fit misses the readings by %.3g times their noise floor, more than the %g that noise allows (residual %.3g nT RMS per degree of freedom; floor %.3g nT, %s): a conductor lies elsewhere than the geometry given, or one is missing from it; the strengths and their uncertainties hold only for the geometry given, not for the conductors",
+		HeldGeometryMissNote, rms/floor, float64(heldMissFactor), rms, floor, from)
 }
 
 // SegmentAsLineNote begins the note (SourceEstimate.Notes) of a segment, or a

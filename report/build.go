@@ -1236,7 +1236,7 @@ func fewDOF(dof int) string {
 	if dof > 0 {
 		spread = fmt.Sprintf("is uncertain by about %.0f%% of itself", 100/math.Sqrt(2*float64(dof)))
 	}
-	return fmt.Sprintf("the fit has only %d %s, %s, and every sigma with it; take more readings across the conductor, or give the reading noise (--noise)", dof, fewDOFMark, spread)
+	return fmt.Sprintf("the fit has only %d %s, %s, and every uncertainty with it; take more readings across the conductor, or give the reading noise (--noise)", dof, fewDOFMark, spread)
 }
 
 // fewDOFMark is the part of fewDOF's text that marks a group's problem as

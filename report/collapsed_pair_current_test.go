@@ -30,7 +30,7 @@ func TestCollapsedPairCurrentsUndetermined(t *testing.T) {
 	if g.OK {
 		t.Fatalf("collapsed pair: OK, problem %q; want no current found", g.Problem)
 	}
-	if strings.Contains(g.Problem, "sigma of zero") || !strings.Contains(g.Problem, "currents (237 A and 235 A, in opposite directions) are not determined") || !strings.Contains(g.Problem, "cancel") {
+	if strings.Contains(g.Problem, "uncertainty of zero") || !strings.Contains(g.Problem, "currents (237 A and 235 A, in opposite directions) are not determined") || !strings.Contains(g.Problem, "cancel") {
 		t.Errorf("collapsed pair's problem %q; want the two currents named as not determined (they cancel), no 3-sigma test", g.Problem)
 	}
 	raw, err := json.Marshal(g)
@@ -57,7 +57,7 @@ func TestCollapsedPairCurrentsUndetermined(t *testing.T) {
 	// A weak line whose current was tested keeps both.
 	weak := noCurrentFixture(nil, inverse.SourceEstimate{Current: 2.1, CurrentSigma: 0.8, Depth: 1.5, DepthSigma: 0.4})
 	g, _ = buildGroup(weak, false, 0, 0, false, 0)
-	if !strings.Contains(g.Problem, "within 3 sigma of zero") {
+	if !strings.Contains(g.Problem, "within 3 times its uncertainty of zero") {
 		t.Errorf("weak line's problem %q; want the 3-sigma wording", g.Problem)
 	}
 	raw, _ = json.Marshal(g)

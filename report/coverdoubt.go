@@ -99,7 +99,7 @@ func coverDoubt(d *Document, t *Track, s Station) string {
 	loose := ""
 	if c, ok := d.cover(s.Depth); ok {
 		if sg := d.coverSigma(s.DepthSigma); !(c > sg) {
-			loose = fmt.Sprintf("its cover there, %s m, is within one sigma of the ground or above it: the readings hardly fix its depth", PlusMinus(c, sg))
+			loose = fmt.Sprintf("its cover there, %s m, is within its uncertainty of the ground or above it: the readings hardly fix its depth", PlusMinus(c, sg))
 		}
 	}
 	if len(why) == 0 {

@@ -1572,7 +1572,7 @@ func searchFrom(f *Fit, from []*inverse.SourceEstimate, at *[3]float64) *dipoleS
 	ds.source = inverse.SourceEstimate{Kind: KindDipole, Point: pos, PointSigma: sig, Moment: mom, MomentSigma: momSig, Phase: momPhase,
 		Depth: o.Depth, DepthSigma: o.DepthSigma,
 		Identifiable: inverse.Identifiable{Depth: sig[2] > 0},
-		Notes:        []string{"a magnetised (ferrous) object, not a current; its position's and strength's sigmas with the conductors' geometry free (fitted as a point dipole)"}}
+		Notes:        []string{"a magnetised (ferrous) object, not a current; its position's and strength's uncertainties with the conductors' geometry free (fitted as a point dipole)"}}
 	// The strongest conductor's current solved jointly with the moment at
 	// the final position; its sigma the largest of the conductors' own
 	// fit's (their geometry free), the joint linear fit's and the joint
@@ -1697,7 +1697,7 @@ func searchAlone(f *Fit, start [3]float64) *dipoleSearch {
 	ds.source = inverse.SourceEstimate{Kind: KindDipole, Point: pos, PointSigma: sig, Moment: mom, MomentSigma: momSig, Phase: momPhase,
 		Depth: o.Depth, DepthSigma: o.DepthSigma,
 		Identifiable: inverse.Identifiable{Depth: sig[2] > 0},
-		Notes:        []string{"a magnetised (ferrous) object, not a current, with no conductor under it; its position's and strength's sigmas from the readings' noise (fitted as a point dipole)"}}
+		Notes:        []string{"a magnetised (ferrous) object, not a current, with no conductor under it; its position's and strength's uncertainties from the readings' noise (fitted as a point dipole)"}}
 	out := *r
 	out.Status = inverse.Linear
 	out.Sources = []inverse.SourceEstimate{ds.source}

@@ -42,7 +42,7 @@ func furtherAboveGround(res *inverse.Result, sensorHeight float64) string {
 		if res.DepthReference != "ReferenceZ" {
 			ground = sensorHeight
 		}
-		return fmt.Sprintf("a further line (%s A) lies %s m above the ground given (over 3 sigma above): no buried conductor lies there, and the fit took it to absorb something else (noise shared by many readings, as a base station's correction leaves on a fast log, or the field of something above the ground), so the number of lines and the sigmas are doubtful",
+		return fmt.Sprintf("a further line (%s A) lies %s m above the ground given (over 3 sigma above): no buried conductor lies there, and the fit took it to absorb something else (noise shared by many readings, as a base station's correction leaves on a fast log, or the field of something above the ground), so the number of lines and the uncertainties are doubtful",
 			PlusMinus(s.Current, s.CurrentSigma), PlusMinus(ground-s.Depth, s.DepthSigma))
 	}
 	return ""

@@ -379,9 +379,9 @@ func coverSigmaText(d *Document) string {
 		return ""
 	}
 	if g := d.DepthReference.GroundSigma; g > 0 {
-		return fmt.Sprintf("the fitted depth sigmas and %s m (one sigma) for the ground level, in quadrature", num(g))
+		return fmt.Sprintf("the fitted depth uncertainties combined with %s m (one sigma) for the ground level (in quadrature)", num(g))
 	}
-	return "the fitted depth sigmas only, which cover the reading noise; no uncertainty of the ground level was given"
+	return "the fitted depth uncertainties only, which cover the reading noise; no uncertainty of the ground level was given"
 }
 
 func valueText(x Value) string {

@@ -170,10 +170,10 @@ func TestHTMLGroundSigma(t *testing.T) {
 		ground      float64
 		cover, says string
 	}{
-		{0, ": 0.545 ± 0.012 m, conductor 1 at", "the fitted depth sigmas only, which cover the reading noise"},
+		{0, ": 0.545 ± 0.012 m, conductor 1 at", "the fitted depth uncertainties only, which cover the reading noise"},
 		// The fixture's shallowest station has a depth sigma of 0.012 m:
 		// hypot(0.012, 0.05) = 0.0514, printed to two significant digits.
-		{0.05, ": 0.545 ± 0.051 m, conductor 1 at", "and 0.050 m (one sigma) for the ground level"},
+		{0.05, ": 0.545 ± 0.051 m, conductor 1 at", "combined with 0.050 m (one sigma) for the ground level"},
 	} {
 		d := fenwickLane(false)
 		d.DepthReference.GroundSigma = tc.ground

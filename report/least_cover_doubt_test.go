@@ -134,7 +134,7 @@ func TestLeastCoverLooselyFitted(t *testing.T) {
 		if v := coverIn(t, lc, "followed: "); math.Abs(v-0.05) > 0.003 {
 			t.Errorf("least cover %.4f m, want the station's 0.05 m kept", v)
 		}
-		loose := strings.Contains(lc, "within one sigma of the ground")
+		loose := strings.Contains(lc, "within its uncertainty of the ground")
 		if sigma > 0.05 {
 			if !loose || !strings.Contains(lc, "conductor 1's least cover is ") {
 				t.Errorf("%q: want the loose cover said so, and conductor 1's given", lc)

@@ -205,7 +205,7 @@ func caveatMisfitSteps(r *route.Route, kind map[string]string) {
 			why = append(why, "miss their readings by far more than the noise the readings themselves show (the run's warning that the fitted lines do not describe the field)")
 		}
 		if kinds[fitUnresolved] {
-			why = append(why, "were fitted with fewer lines than the readings ask for (conductors closer together than the fit can part may lie there, where another traverse parted two lines and the route took their sum), which can move a current by more than its sigma")
+			why = append(why, "were fitted with fewer lines than the readings ask for (conductors closer together than the fit can part may lie there, where another traverse parted two lines and the route took their sum), which can move a current by more than its uncertainty")
 		}
 		f.Message += fmt.Sprintf("; it rests on fits that %s: %s, so it may be the model's error rather than a change in the current",
 			strings.Join(why, " or "), keyList(named))

@@ -50,7 +50,7 @@ func TestNoCurrentAsksEveryLine(t *testing.T) {
 // fitted but only roughly (inverse.AnglesApproximateNote) is used with care.
 func TestHeldAnglesRejectedFails(t *testing.T) {
 	cable := inverse.SourceEstimate{Current: 24.6, CurrentSigma: 2.2, Depth: 1.35, DepthSigma: 0.14}
-	note := inverse.HeldAnglesRejectedNote + ": holding them raises chi-square by 548"
+	note := inverse.HeldAnglesRejectedNote + ": holding them fits the readings clearly worse than leaving them free (chi-square higher by 548; more than 11.8, the 99.73% point for the angles held)"
 	g, st := buildGroup(noCurrentFixture([]string{note}, cable), false, 0, 0, false, 0)
 	if g.OK || st.OK || !strings.Contains(g.Problem, inverse.HeldAnglesRejectedNote) {
 		t.Errorf("held angles rejected: OK %v, station OK %v, problem %q; want a failed fit saying why", g.OK, st.OK, g.Problem)

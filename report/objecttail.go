@@ -123,7 +123,7 @@ func objectTails(fits []Fit, kept []accepted, progress func(done, total int)) bo
 			strings.Join(where, " and of the one at "), peak, res.Sigma))
 		if widen > 0 {
 			out.Notes = append(out.Notes, fmt.Sprintf(
-				"the current's sigma holds the uncertainty of that object's field (its position and moment within their sigmas move the current here by %.2g A): widened from %.2g to %.2g A",
+				"the current's uncertainty holds that of the object's field (its position and moment within their uncertainties move the current here by %.2g A): widened from %.2g to %.2g A",
 				widen, res0Sigma(out, widen), out.Sources[0].CurrentSigma))
 		}
 		dropSearch(f)

@@ -52,7 +52,7 @@ func routeCoverDoubt(d *Document, r *Route, s Station) string {
 			if r.FirstWalk != "" {
 				level = fmt.Sprintf(", at the level of %s", r.FirstWalk)
 			}
-			why = append(why, fmt.Sprintf("its current, %s A, differs from both neighbours' (%s A at %s, %s A at %s%s) by more than %d sigma",
+			why = append(why, fmt.Sprintf("its current, %s A, differs from both neighbours' (%s A at %s, %s A at %s%s) by more than %d times their uncertainties",
 				pm(sv, ss), pm(lv, ls), lo.Key, pm(hv, hs), hi.Key, level, routeAnomalyK))
 		}
 	}

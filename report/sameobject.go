@@ -155,11 +155,11 @@ func heldObjectFit(f *Fit, own, kept *dipoleSearch, keptKey string) (*inverse.Re
 	}
 	o := kept.obj
 	out.Notes = append(out.Notes, fmt.Sprintf(
-		"the field of the magnetised object found at %s (a point dipole at east %.2f m, north %.2f m, %.2f m down, as fitted there) is taken out of these readings before the conductors are fitted: this traverse sees the same object, which its own fit placed within its sigmas of that position or within a quarter of its depth",
+		"the field of the magnetised object found at %s (a point dipole at east %.2f m, north %.2f m, %.2f m down, as fitted there) is taken out of these readings before the conductors are fitted: this traverse sees the same object, which its own fit placed within its uncertainties of that position or within a quarter of its depth",
 		keptKey, o.Point[0], o.Point[1], o.Depth))
 	if widen := tailSigma(f, out, kept); widen > 0 {
 		out.Notes = append(out.Notes, fmt.Sprintf(
-			"the current's sigma holds the uncertainty of that object's field (its position and moment within their sigmas move the current here by %.2g A): widened from %.2g to %.2g A",
+			"the current's uncertainty holds that of the object's field (its position and moment within their uncertainties move the current here by %.2g A): widened from %.2g to %.2g A",
 			widen, res0Sigma(out, widen), out.Sources[0].CurrentSigma))
 	}
 	return out, true
@@ -197,7 +197,7 @@ func aloneHeldFit(f *Fit, own, kept *dipoleSearch, keptKey string) (*inverse.Res
 	o := kept.obj
 	if out, ok := refitWithout(f, max(lines, 1), kept); ok && NoCurrent(&out.Sources[0], ac) {
 		out.Notes = append(out.Notes, fmt.Sprintf(
-			"the field of the magnetised object found at %s (a point dipole at east %.2f m, north %.2f m, %.2f m down, as fitted there) is taken out of these readings before the conductors are fitted: this traverse sees the same object, which its own fit placed within its sigmas of that position or within a quarter of its depth, and no current is left under it",
+			"the field of the magnetised object found at %s (a point dipole at east %.2f m, north %.2f m, %.2f m down, as fitted there) is taken out of these readings before the conductors are fitted: this traverse sees the same object, which its own fit placed within its uncertainties of that position or within a quarter of its depth, and no current is left under it",
 			keptKey, o.Point[0], o.Point[1], o.Depth))
 		return out, true
 	}
@@ -216,7 +216,7 @@ func aloneHeldFit(f *Fit, own, kept *dipoleSearch, keptKey string) (*inverse.Res
 		return nil, false
 	}
 	out.Notes = append(append([]string(nil), w.result.Notes...), fmt.Sprintf(
-		"the field of the magnetised object found at %s (a point dipole at east %.2f m, north %.2f m, %.2f m down, as fitted there) is in these readings: this traverse's own fit placed the same object within its sigmas of that position or within a quarter of its depth, and with the object so placed taken out of the readings no current is left under it",
+		"the field of the magnetised object found at %s (a point dipole at east %.2f m, north %.2f m, %.2f m down, as fitted there) is in these readings: this traverse's own fit placed the same object within its uncertainties of that position or within a quarter of its depth, and with the object so placed taken out of the readings no current is left under it",
 		keptKey, o.Point[0], o.Point[1], o.Depth))
 	return &out, true
 }

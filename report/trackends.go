@@ -146,7 +146,7 @@ func trackEndFinding(r *route.Route, p, a, b, z *route.Placed, named []string) r
 		To:       second,
 		Position: p.Point,
 		Keys:     []string{a.Key, b.Key},
-		Message: fmt.Sprintf("not found past %s (%s A there) while conductor 1 runs on to %s: it appears to end between %s and %s (conductor 1's chainage %.1f to %.1f m; a termination, a cut, or a joint to a line that leaves the survey; check where it goes); conductor 1's fits past it miss their readings by more than the noise measured apart from them (%s), as the field of a line's end beside it makes them (not modelled), so conductor 1's current and depth there may be off by more than their sigmas",
+		Message: fmt.Sprintf("not found past %s (%s A there) while conductor 1 runs on to %s: it appears to end between %s and %s (conductor 1's chainage %.1f to %.1f m; a termination, a cut, or a joint to a line that leaves the survey; check where it goes); conductor 1's fits past it miss their readings by more than the noise measured apart from them (%s), as the field of a line's end beside it makes them (not modelled), so conductor 1's current and depth there may be off by more than their uncertainties",
 			a.Key, pm(math.Abs(p.Current), p.CurrentSigma), z.Key, a.Key, b.Key, a.Chainage, b.Chainage, strings.Join(named, ", ")),
 		Values: []route.Value{
 			{Name: "current at its last station", Value: math.Abs(p.Current), Sigma: p.CurrentSigma, Unit: "A"},

@@ -159,7 +159,7 @@ func unfitNoCurrent(f *Fit, res *inverse.Result, ac bool) string {
 // sources[0].current_a and the poor-fit finding that quotes the text
 // agree.
 func noCurrentHead(current, sigma float64, ac bool) string {
-	return fmt.Sprintf("no current found: the strongest line's current, %s A, is within %.3g sigma of zero", PlusMinus(current, sigma), currentK(ac))
+	return fmt.Sprintf("no current found: the strongest line's current, %s A, is within %.3g times its uncertainty of zero", PlusMinus(current, sigma), currentK(ac))
 }
 
 // undeterminedHead is the start of noCurrentProblem's text for a group
@@ -306,7 +306,7 @@ func nearSensorProblem(f *Fit, res *inverse.Result, ac bool) string {
 	if math.Abs(s.Current) > k*s.CurrentSigma {
 		return ""
 	}
-	return fmt.Sprintf("no current found: the line lies %.2g m below the lowest sensor, within %.2g m of it (two reading spacings or a hundredth of the readings' extent, whichever is more), where a line fits the noise of a few readings; noise alone does so beside one or other of the %d readings, so its current, %s A, would have to exceed %.3g sigma (3 sigma's chance over as many places) to be found, and does not: no conductor is detected under this group, and its position and depth mean nothing%s",
+	return fmt.Sprintf("no current found: the line lies %.2g m below the lowest sensor, within %.2g m of it (two reading spacings or a hundredth of the readings' extent, whichever is more), where a line fits the noise of a few readings; noise alone does so beside one or other of the %d readings, so its current, %s A, would have to exceed %.3g times its uncertainty (3 sigma's chance over as many places) to be found, and does not: no conductor is detected under this group, and its position and depth mean nothing%s",
 		h, within, len(p.Points), PlusMinus(s.Current, s.CurrentSigma), k, alongClause(f))
 }
 
@@ -333,7 +333,7 @@ func aboveGroundProblem(res *inverse.Result, s *inverse.SourceEstimate, sensorHe
 	if d+3*s.DepthSigma < 0 {
 		return fmt.Sprintf("the line lies above the ground given (depth %s m below it, over 3 sigma above): no buried conductor lies there, and the fit stands for something else (noise beside a sensor, or the field of something above the ground)", PlusMinus(d, s.DepthSigma)), true
 	}
-	return fmt.Sprintf("the line lies above the ground given, within 3 sigma of it (depth %s m below it): a conductor on the surface, or the ground level given is too low", PlusMinus(d, s.DepthSigma)), false
+	return fmt.Sprintf("the line lies above the ground given, by less than 3 times its uncertainty (depth %s m below it): a conductor on the surface, or the ground level given is too low", PlusMinus(d, s.DepthSigma)), false
 }
 
 // undetectedProblem returns why a group whose only source is a line with a current
@@ -352,6 +352,6 @@ func undetectedProblem(f *Fit, res *inverse.Result, ac bool) string {
 		return ""
 	}
 	s := &res.Sources[0]
-	return fmt.Sprintf("no current found: the line's current, %s A, is beyond %.3g sigma, but the line fits the readings no better than noise alone makes one fit at one place or another along %d readings (chi-square lower by only %.3g than with the background alone, against up to %.3g from noise on 99.73%% of such surveys): no conductor is detected under this group, though one too deep or weak for these readings may lie there; its position and depth mean nothing",
+	return fmt.Sprintf("no current found: the line's current, %s A, is more than %.3g times its uncertainty from zero, but the line fits the readings no better than noise alone makes one fit at one place or another along %d readings (chi-square lower by only %.3g than with the background alone, against up to %.3g from noise on 99.73%% of such surveys): no conductor is detected under this group, though one too deep or weak for these readings may lie there; its position and depth mean nothing",
 		PlusMinus(s.Current, s.CurrentSigma), currentK(ac), len(f.Problem.Points), math.Max(drop, 0), limit)
 }

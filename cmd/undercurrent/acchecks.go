@@ -197,7 +197,7 @@ func uncheckedWarning(ws []calibrate.Window, freq float64) string {
 	if clear < freqCheckMinWindows {
 		return fmt.Sprintf("the AC frequency could not be checked: fewer than %d windows have a clear signal (the field %d times its noise on some axis), for example with a stronger field at another frequency nearby; the results assume the field runs at exactly %g Hz", freqCheckMinWindows, freqCheckSNR, freq)
 	}
-	return fmt.Sprintf("the AC frequency could not be checked: %d of %d windows have a clear signal, but their fitted frequencies disagree far beyond their own sigmas, and fewer than %d lie within 10 of their sigmas of the median (as where conductors of different phase overlap and the phase turns as the sensor walks, or where the frequency hops); the results assume the field runs at exactly %g Hz", clear, len(ws), freqCheckMinWindows, freq)
+	return fmt.Sprintf("the AC frequency could not be checked: %d of %d windows have a clear signal, but their fitted frequencies disagree far beyond their own uncertainties, and fewer than %d lie within 10 times their uncertainties of the median (as where conductors of different phase overlap and the phase turns as the sensor walks, or where the frequency hops); the results assume the field runs at exactly %g Hz", clear, len(ws), freqCheckMinWindows, freq)
 }
 
 func abs(z complex128) float64 { return math.Hypot(real(z), imag(z)) }

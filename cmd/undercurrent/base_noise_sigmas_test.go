@@ -85,12 +85,12 @@ func TestBaseNoiseInSigmas(t *testing.T) {
 		}](t, "--count", "1", "--group-by", "group", "--reference-z", "0", "--base", base, log)
 		warned := false
 		for _, w := range doc.Warnings {
-			warned = warned || strings.Contains(w, "its own noise") && strings.Contains(w, "sigmas were widened")
+			warned = warned || strings.Contains(w, "its own noise") && strings.Contains(w, "uncertainties were widened")
 		}
 		if !warned {
 			t.Errorf("seed %d: no warning of the base's noise; warnings: %q", seed, doc.Warnings)
 		}
-		if doc.BaseStation == nil || !strings.Contains(doc.BaseStation.Summary, "widened the fits' sigmas") {
+		if doc.BaseStation == nil || !strings.Contains(doc.BaseStation.Summary, "widened the fits' uncertainties") {
 			t.Errorf("seed %d: the base summary does not give the widening: %+v", seed, doc.BaseStation)
 		}
 		truth := map[string]simulate.Crossing{}

@@ -567,7 +567,7 @@ func turnWarning(what string, s, b [3]float64, angle, allow float64, basePath, w
 		steeper = "shallower"
 	}
 	psi, tilt := math.Abs(dh), math.Abs(dd)
-	msg := fmt.Sprintf("%s east %.0f, north %.0f, up %.0f nT) points %.1f° away from the base record's (%.0f, %.0f, %.0f nT; %s, %s), more than the %.1f° that local anomalies and the distance between them allow: its horizontal direction is turned %.1f° %s (seen from above) and it dips %.1f° %s. The sensor's axes are turned against east, north, up (or the base magnetometer's own are), which a spin calibration cannot see and the fits' sigmas do not include (one field direction cannot part a turn about the vertical from a tilt fully: a tilt across the field also turns its horizontal direction).",
+	msg := fmt.Sprintf("%s east %.0f, north %.0f, up %.0f nT) points %.1f° away from the base record's (%.0f, %.0f, %.0f nT; %s, %s), more than the %.1f° that local anomalies and the distance between them allow: its horizontal direction is turned %.1f° %s (seen from above) and it dips %.1f° %s. The sensor's axes are turned against east, north, up (or the base magnetometer's own are), which a spin calibration cannot see and the fits' uncertainties do not include (one field direction cannot part a turn about the vertical from a tilt fully: a tilt across the field also turns its horizontal direction).",
 		what, s[0], s[1], s[2], angle, b[0], b[1], b[2], basePath, where, allow, psi, side, tilt, steeper)
 	if cal == nil {
 		// Uncorrected offsets and soft iron turn the field as well

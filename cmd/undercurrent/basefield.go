@@ -237,7 +237,7 @@ func baseFieldWarnings(basePath string, base *ingest.Samples, f *surveyField, or
 		case f.fitted:
 			src = " of the fitted groups' backgrounds"
 		}
-		warns = append(warns, fmt.Sprintf("|B| of the survey after the corrections is %.0f nT (median)%s, %+.2f%% from the %.0f nT of the %s (%s, %s), more than the %.2f%% that local anomalies and the distance between them allow: %s. Currents scale with the sensor's scale (a scale %.2f%% off gives currents %.2f%% off), which the fits' sigmas do not include",
+		warns = append(warns, fmt.Sprintf("|B| of the survey after the corrections is %.0f nT (median)%s, %+.2f%% from the %.0f nT of the %s (%s, %s), more than the %.2f%% that local anomalies and the distance between them allow: %s. Currents scale with the sensor's scale (a scale %.2f%% off gives currents %.2f%% off), which the fits' uncertainties do not include",
 			ns, src, 100*d, nb, levelOf, basePath, where, 100*allowMag, cause, math.Abs(100*d), math.Abs(100*d)))
 	}
 	return warns, compared

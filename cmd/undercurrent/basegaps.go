@@ -84,7 +84,7 @@ func noteBaseGaps(sv *survey, o *locateOptions, s *ingest.Samples, rep *calibrat
 		}
 		parts = append(parts, u.describe())
 	}
-	return fmt.Sprintf("the base record %s is missing readings in %s over a minute long that %s of %s fall in, across which the base correction drew a straight line: %s. A straight line is a guess at the field the base did not record, and its error is in no fit's sigma: the groups named are marked for review and not counted sound. Give a base record without the gap (another file of the same station, or a nearby observatory's record for the whole survey) to correct them",
+	return fmt.Sprintf("the base record %s is missing readings in %s over a minute long that %s of %s fall in, across which the base correction drew a straight line: %s. A straight line is a guess at the field the base did not record, and its error is in no fit's uncertainty: the groups named are marked for review and not counted sound. Give a base record without the gap (another file of the same station, or a nearby observatory's record for the whole survey) to correct them",
 		o.base, plural(len(long), "gap"), plural(rows, "reading"), s.Source, strings.Join(parts, "; "))
 }
 
@@ -158,9 +158,9 @@ func baseGapsDocument(doc *report.Document, sv *survey) {
 			}
 			why := fmt.Sprintf(baseGapMark+" %d of %d readings corrected by a straight line bridging %g s of the base record (%s missing; ", u.counts[k], u.total[k], bg.Seconds, plural(g.Absent, "base reading"))
 			if g.Spans > 0 {
-				why += fmt.Sprintf("its error about %.2g nT RMS, in no sigma)", g.LineRMS)
+				why += fmt.Sprintf("its error about %.2g nT RMS, in no uncertainty)", g.LineRMS)
 			} else {
-				why += "its error in no sigma)"
+				why += "its error in no uncertainty)"
 			}
 			why += ": review"
 			if gr.Problem != "" {
@@ -171,7 +171,7 @@ func baseGapsDocument(doc *report.Document, sv *survey) {
 		if !math.IsInf(lo, 0) {
 			f.ChainageFrom, f.ChainageTo = lo, hi
 		}
-		f.Message = "base gap: " + u.describe() + "; the fits of these readings carry an error their sigmas do not hold: review them, or give a base record without the gap"
+		f.Message = "base gap: " + u.describe() + "; the fits of these readings carry an error their uncertainties do not hold: review them, or give a base record without the gap"
 		if len(f.Groups) > 0 {
 			doc.Findings = append(doc.Findings, f)
 		}

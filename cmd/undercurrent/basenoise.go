@@ -352,7 +352,7 @@ func widenForBaseNoise(sv *survey, workers int) {
 	}
 	noise := nt(bn.sigma[0]) + "/" + nt(bn.sigma[1]) + "/" + nt(bn.sigma[2]) + " nT (east/north/up)"
 	if sv.doc.BaseStation != nil {
-		sv.doc.BaseStation.Summary += fmt.Sprintf("; the base's own noise, %s, widened the fits' sigmas by x%.2f (median; up to x%.2f)", noise, med, top)
+		sv.doc.BaseStation.Summary += fmt.Sprintf("; the base's own noise, %s, widened the fits' uncertainties by x%.2f (median; up to x%.2f)", noise, med, top)
 	}
 	if top < baseNoiseWarnFactor {
 		return
@@ -369,7 +369,7 @@ func widenForBaseNoise(sv *survey, workers int) {
 	if med >= math.Sqrt2 {
 		how = "on most groups it moves the fits more than the survey's own noise does"
 	}
-	sv.warnings = append(sv.warnings, fmt.Sprintf("base record %s: its own noise, %s measured from its fourth differences%s, goes into every survey reading it corrects,%s and moves the fits as drift would: the fits' sigmas were widened for it by x%.2f (median of the groups; up to x%.2f), and %s. A quieter base magnetometer, or one read more often, would give tighter results",
+	sv.warnings = append(sv.warnings, fmt.Sprintf("base record %s: its own noise, %s measured from its fourth differences%s, goes into every survey reading it corrects,%s and moves the fits as drift would: the fits' uncertainties were widened for it by x%.2f (median of the groups; up to x%.2f), and %s. A quieter base magnetometer, or one read more often, would give tighter results",
 		bn.name, noise, coarse, share, med, top, how))
 }
 

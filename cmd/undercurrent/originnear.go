@@ -146,10 +146,10 @@ func (f *readFlags) checkOriginNear(paths []string, opts []ingest.Option) ([]str
 		what := fmt.Sprintf("%s: --origin %s is %s from the log's first reading (%s), whose level frame is turned %s degrees from the origin's: positions are placed in the origin's level plane while each reading's field stays in its own",
 			path, flag, kmText(km), originText(first), degText(frameTurnDeg(o, first)))
 		if km > originFarKm {
-			return warns, usageErrorf("%s, which past %g km moves depths, currents and positions by a good part of a sigma or more (0.27 sigma at 50 km in a survey measured at 52 degrees north)%s; give an origin within %g km of the readings, such as the log's first reading, --origin %s",
+			return warns, usageErrorf("%s, which past %g km moves depths, currents and positions by a good part of their uncertainty or more (0.27 sigma at 50 km in a survey measured at 52 degrees north)%s; give an origin within %g km of the readings, such as the log's first reading, --origin %s",
 				what, originFarKm, originSlip(o, first), originFarKm, originArg(first))
 		}
-		warns = append(warns, fmt.Sprintf("%s, which moves depths and currents by up to about 0.1 sigma per 20 km (measured at 52 degrees north); an origin within %g km of the readings, such as the log's first reading (--origin %s), avoids that",
+		warns = append(warns, fmt.Sprintf("%s, which moves depths and currents by up to about 0.1 times their uncertainty per 20 km (measured at 52 degrees north); an origin within %g km of the readings, such as the log's first reading (--origin %s), avoids that",
 			what, originWarnKm, originArg(first)))
 	}
 	return warns, nil

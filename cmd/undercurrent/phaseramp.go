@@ -631,7 +631,7 @@ func wanderWarning(sv *survey) string {
 			// estimate was off by 1.5 of its sigma, was said to be off
 			// through "the walk over conductors of different phase, or the
 			// signal's harmonics"; found in review).
-			why = fmt.Sprintf(", so the frequency estimated from single windows was off by %s Hz, within three of its own sigmas (its sigma ± %.*f Hz): windows of a fraction of a second each fix the frequency far less closely than the lines' fit across a whole group", plusMinusHz(-off, sigma), max(0, 1-int(math.Floor(math.Log10(est)))), est)
+			why = fmt.Sprintf(", so the frequency estimated from single windows was off by %s Hz, within three times its own uncertainty (its sigma ± %.*f Hz): windows of a fraction of a second each fix the frequency far less closely than the lines' fit across a whole group", plusMinusHz(-off, sigma), max(0, 1-int(math.Floor(math.Log10(est)))), est)
 		} else if estimated {
 			why = fmt.Sprintf(", so the frequency estimated from single windows was off by %s Hz (the walk over conductors of different phase, or the signal's harmonics, can bias single windows beyond their sigmas; the lines' fits hold the phase changing along a traverse)", plusMinusHz(-off, sigma))
 		}

@@ -127,7 +127,7 @@ phase_deg = 35.0
 						continue
 					}
 					for _, w2 := range doc.Warnings {
-						if strings.Contains(w2, "estimated from single windows") && !strings.Contains(w2, "within three of its own sigmas") {
+						if strings.Contains(w2, "estimated from single windows") && !strings.Contains(w2, "within three times its own uncertainty") {
 							t.Errorf("seed %d: the estimate %s ± %s Hz lies within three sigmas of the simulated %g Hz, yet: %s", seed, m[1], m[2], truth, w2)
 						}
 						// The offset and the sigma it is judged by are printed
@@ -170,4 +170,4 @@ phase_deg = 35.0
 
 // withinRE reads the offset and the estimate's printed sigma from the
 // warning that says the estimate was off within three of its sigmas.
-var withinRE = regexp.MustCompile(`off by ([-+0-9.]+) ± [0-9.]+ Hz, within three of its own sigmas \(its sigma ± ([0-9.]+) Hz\)`)
+var withinRE = regexp.MustCompile(`off by ([-+0-9.]+) ± [0-9.]+ Hz, within three times its own uncertainty \(its sigma ± ([0-9.]+) Hz\)`)

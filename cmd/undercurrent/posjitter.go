@@ -333,6 +333,6 @@ func positionJitter(sv *survey, fits []report.Fit) string {
 	if nz := medianOf(noise); nz > 0 {
 		against = fmt.Sprintf(" against the %.3g nT noise the readings themselves show", nz)
 	}
-	return fmt.Sprintf("the positions scatter from reading to reading by %.2g m (median; robust, from their fourth differences along each traverse, on %.2g m reading spacing) in %d of %d groups (%s), %.0f%% of the conductor's depth below the sensors: scattered positions (satellite positioning jitter, or positions rounded when stored) make the fits miss the readings by about %.3g nT RMS per component%s, most on the anomaly's flanks, and flatten and widen the fitted anomaly, so depths read deep, currents high and offsets off by more than their sigmas, which count no position error; smooth the track or use corrected positions",
+	return fmt.Sprintf("the positions scatter from reading to reading by %.2g m (median; robust, from their fourth differences along each traverse, on %.2g m reading spacing) in %d of %d groups (%s), %.0f%% of the conductor's depth below the sensors: scattered positions (satellite positioning jitter, or positions rounded when stored) make the fits miss the readings by about %.3g nT RMS per component%s, most on the anomaly's flanks, and flatten and widen the fitted anomaly, so depths read deep, currents high and offsets off by more than their uncertainties, which count no position error; smooth the track or use corrected positions",
 		medianOf(scat), medianOf(spac), len(keys), len(sv.groups), which, 100*medianOf(share), medianOf(mis), against)
 }

@@ -88,7 +88,7 @@ func TestLocateShortTraverseLeftOutOfRoute(t *testing.T) {
 		}
 		said = true
 		for _, want := range []string{"left out of the route's line and chainage",
-			"its current, " + report.PlusMinus(t03st.Current, t03st.CurrentSigma) + " A,", "T02's", "T04's", "over 3 sigma from each"} {
+			"its current, " + report.PlusMinus(t03st.Current, t03st.CurrentSigma) + " A,", "T02's", "T04's", "over 3 times the uncertainty from each"} {
 			if !strings.Contains(f.Message, want) {
 				t.Errorf("T03's finding %q does not say %q", f.Message, want)
 			}

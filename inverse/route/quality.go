@@ -55,7 +55,7 @@ func quality(ps []Placed, set *Settings, steps []Finding) []Finding {
 				From:     p.Chainage, To: p.Chainage,
 				Position: p.Point,
 				Keys:     []string{p.Key},
-				Message: fmt.Sprintf("fit at %s misses %.3g nT RMS of a %.0f nT signal (%.2g%%), %.3g %s: the straight-line model is only approximate here (%s); the estimates hold to about that fraction, but their sigmas may be optimistic (reduced chi-square %.3g)",
+				Message: fmt.Sprintf("fit at %s misses %.3g nT RMS of a %.0f nT signal (%.2g%%), %.3g %s: the straight-line model is only approximate here (%s); the estimates hold to about that fraction, but their uncertainties may be too small (reduced chi-square %.3g)",
 					at(p, len(ps) == 1), p.RMS, p.Signal, 100*p.RMS/p.Signal, math.Sqrt(chi), MisfitNoiseWords, orDefault(bend, orDefault(stepCause(p, steps), "a bend, a change of depth or a nearby object")), chi),
 				Values: vals,
 			})
@@ -166,7 +166,7 @@ func unplacedCurrent(ps []Placed, i int, set *Settings) string {
 		if z >= 10 {
 			zt = fmt.Sprintf("%.0f", z)
 		}
-		parts = append(parts, fmt.Sprintf("%s sigma from %s's (%s A)", zt, label(q), pm(q.Current, q.CurrentSigma)))
+		parts = append(parts, fmt.Sprintf("%s times the uncertainty from %s's (%s A)", zt, label(q), pm(q.Current, q.CurrentSigma)))
 	}
 	if len(parts) == 0 {
 		return ""
@@ -174,15 +174,15 @@ func unplacedCurrent(ps []Placed, i int, set *Settings) string {
 	var verdict string
 	switch {
 	case off == len(parts) && len(parts) > 1:
-		verdict = fmt.Sprintf("over %.3g sigma from each: the line this fit found is not the conductor its neighbours follow, or the current changes here, which these readings cannot tell; take the traverse again before reading a change of current here", k)
+		verdict = fmt.Sprintf("over %.3g times the uncertainty from each: the line this fit found is not the conductor its neighbours follow, or the current changes here, which these readings cannot tell; take the traverse again before reading a change of current here", k)
 	case off == len(parts):
-		verdict = fmt.Sprintf("over %.3g sigma from it: the line this fit found is not the conductor its neighbour follows, or the current changes here, which these readings cannot tell; take the traverse again before reading a change of current here", k)
+		verdict = fmt.Sprintf("over %.3g times the uncertainty from it: the line this fit found is not the conductor its neighbour follows, or the current changes here, which these readings cannot tell; take the traverse again before reading a change of current here", k)
 	case off > 0:
-		verdict = fmt.Sprintf("over %.3g sigma from one only, as where current changes beside this traverse (the step search weighs that change between its neighbours, without it)", k)
+		verdict = fmt.Sprintf("over %.3g times the uncertainty from one only, as where current changes beside this traverse (the step search weighs that change between its neighbours, without it)", k)
 	case len(parts) > 1:
-		verdict = fmt.Sprintf("within %.3g sigma of each", k)
+		verdict = fmt.Sprintf("within %.3g times the uncertainty of each", k)
 	default:
-		verdict = fmt.Sprintf("within %.3g sigma of it", k)
+		verdict = fmt.Sprintf("within %.3g times the uncertainty of it", k)
 	}
 	return fmt.Sprintf("; its current, %s A, is %s, %s", pm(p.Current, p.CurrentSigma), strings.Join(parts, " and "), verdict)
 }

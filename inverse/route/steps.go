@@ -56,7 +56,7 @@ func steps(ps []Placed, set *Settings, tau, widen float64) (out []Finding, notes
 				if out[i].Kind == KindPoorFit {
 					continue
 				}
-				out[i].Message += fmt.Sprintf("; only %d usable stations, too few to estimate scatter between stations beyond the fits' sigmas, so the sigma may be optimistic", n0)
+				out[i].Message += fmt.Sprintf("; only %d usable stations, too few to estimate scatter between stations beyond the fits' own uncertainties, so the uncertainty may be too small", n0)
 			}
 		}
 		if tau <= 0 {
@@ -83,7 +83,7 @@ func steps(ps []Placed, set *Settings, tau, widen float64) (out []Finding, notes
 			if out[i].Kind == KindPoorFit {
 				continue
 			}
-			out[i].Message += fmt.Sprintf("; sigmas include an excess scatter between stations of %s A, beyond what the fits' own sigmas explain%s", SigmaText(tau), note)
+			out[i].Message += fmt.Sprintf("; the uncertainties include an excess scatter between stations of %s A, beyond what the fits' own uncertainties explain%s", SigmaText(tau), note)
 			out[i].Values = append(out[i].Values, Value{Name: "between-station scatter", Value: tau, Unit: "A"})
 		}
 	}()
@@ -750,9 +750,9 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64, bs 
 			// (a 0.025 ± 0.015 A change read "beyond 3 sigma"; found in
 			// review).
 			kText := strconv.FormatFloat(set.stepK(), 'g', 3, 64)
-			sized := fmt.Sprintf("%.2g sigma, beyond %s sigma,", math.Abs(size)/sigma, kText)
+			sized := fmt.Sprintf("%.2g times its uncertainty, beyond the %s times required,", math.Abs(size)/sigma, kText)
 			if !(math.Abs(size) > set.stepK()*sigma) {
-				sized = fmt.Sprintf("%.2g sigma (the change between the stations, beyond %s sigma of the trend, flagged it),", math.Abs(size)/sigma, kText)
+				sized = fmt.Sprintf("%.2g times its uncertainty (the change between the stations, beyond %s times its uncertainty from the trend, flagged it),", math.Abs(size)/sigma, kText)
 			}
 			msg = fmt.Sprintf("%s %s by %s A (%s%%) between %s (chainage %.1f m) and %s (%.1f m)%s, %s but under the %s%% taken as a step: at that size more likely the model's error than current leaving or joining: a change of depth or a bend within a few depths of a traverse, or a gradual change of current along the route that is not a straight line (traverses closer together there would tell)",
 				what, verb, pm(math.Abs(size), sigma), relText, label(first), first.Chainage, label(second), second.Chainage, along, sized, thrText)

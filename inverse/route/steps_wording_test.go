@@ -51,8 +51,8 @@ func TestCurrentChangeReadsUnderThreshold(t *testing.T) {
 	if !(shown < thr) {
 		t.Errorf("change reads %s%%, not visibly under the %s%% threshold: %s", m[1], m[2], f.Message)
 	}
-	if !strings.Contains(f.Message, "beyond 3 sigma") || strings.Contains(f.Message, "--step-k") {
-		t.Errorf("message does not say beyond 3 sigma (StepK's default) in numbers: %s", f.Message)
+	if !regexp.MustCompile(`beyond (the )?3 times`).MatchString(f.Message) || strings.Contains(f.Message, "--step-k") {
+		t.Errorf("message does not say beyond 3 times its uncertainty (StepK's default) in numbers: %s", f.Message)
 	}
 	var rel, floor *Value
 	for i := range f.Values {

@@ -600,7 +600,7 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 		e.Quality = "degraded"
 		worst := ""
 		if s := p.worstSensors(r); s != "" {
-			worst = "; the sensors whose leaving out lowers the chi-square most: " + s
+			worst = "; the sensors the fit misses most, with the share of the misfit that leaving each out removes: " + s
 		}
 		model := "; a misfit spread over several sensors points to a conductor the thin-line model does not describe (a flat bar, a bend or another source close to the sensors: a line's field differs from a strip's of width w at distance d by about (w/d)^2/12) or to a wrong geometry, one at a single sensor to that sensor (moved, turned, its offset changed)"
 		if fr := r.frozenUsed(a); fr != "" {
@@ -610,14 +610,14 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 			scale = math.Sqrt(jred)
 			e.SigmaScale = scale
 			alarms = append(alarms, p.alarm(w, AlarmDegraded, "", jred, a.Alarms.MaxChi2,
-				fmt.Sprintf("reduced chi-square %.3g above %.3g: the readings miss the held geometry by %.3g times the stated noise; the window's sigmas are widened by that factor%s%s",
-					jred, a.Alarms.MaxChi2, scale, worst, model)))
+				fmt.Sprintf("the readings miss the held geometry by %.3g times the stated noise, more than the %.3g times allowed: the window's uncertainties are widened by that factor (reduced chi-square %.3g above %.3g)%s%s",
+					scale, math.Sqrt(a.Alarms.MaxChi2), jred, a.Alarms.MaxChi2, worst, model)))
 		} else {
 			// The sigmas already come from the residuals (noise = 0): not
 			// widened again, but the model's error is not noise.
 			alarms = append(alarms, p.alarm(w, AlarmDegraded, "", jred, a.Alarms.MaxChi2,
-				fmt.Sprintf("the readings miss the held geometry by %.3g times their own scatter within the window (reduced chi-square %.3g above %.3g against it): with noise = 0 the sigmas come from the fit's residuals, which take the model's error for noise, so they understate it%s%s",
-					math.Sqrt(jred), jred, a.Alarms.MaxChi2, worst, model)))
+				fmt.Sprintf("the readings miss the held geometry by %.3g times their own scatter within the window, more than the %.3g times allowed (reduced chi-square %.3g above %.3g against it): with noise = 0 the uncertainties come from the fit's residuals, which take the model's error for noise, so they understate it%s%s",
+					math.Sqrt(jred), math.Sqrt(a.Alarms.MaxChi2), jred, a.Alarms.MaxChi2, worst, model)))
 		}
 	}
 	if e.Quality == "good" && len(r.missing) > 0 {
@@ -933,8 +933,8 @@ func (p *processor) implausible(w *window, r *reduced, out *SolveOutput) []Alarm
 	if a.Noise > 0 && out.DOF > 0 && chi2Implausible(out.Chi2, out.DOF) {
 		red := out.Chi2 / float64(out.DOF)
 		alarms = append(alarms, p.alarm(w, AlarmImplausible, checkChi2, red, maxImplausibleChi2,
-			fmt.Sprintf("reduced chi-square %.3g on %d degrees of freedom: the residuals are %.3g times the stated noise of %g nT; fields in the wrong unit, or the noise overstated?",
-				red, out.DOF, math.Sqrt(red), a.Noise)))
+			fmt.Sprintf("the readings stray from the fit by only %.3g times the stated noise of %g nT, far less than noise would: fields in the wrong unit, or the noise overstated? (reduced chi-square %.3g on %d degrees of freedom)",
+				math.Sqrt(red), a.Noise, red, out.DOF)))
 	}
 	return alarms
 }

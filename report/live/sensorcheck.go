@@ -220,7 +220,7 @@ func (p *processor) isolate(r *reduced) (*reduced, []string, []string, []float64
 		best := sh[0]
 		names = append(names, best.name)
 		reds = append(reds, o.Chi2/float64(o.DOF))
-		why = append(why, fmt.Sprintf("the window's chi-square falls from %.3g to %.3g (reduced %.3g) without it", o.Chi2, o.Chi2-best.fall, best.red))
+		why = append(why, fmt.Sprintf("leaving it out removes %.0f%% of the window's misfit (chi-square from %.3g to %.3g, reduced %.3g)", 100*math.Min(1, math.Max(0, best.fall/o.Chi2)), o.Chi2, o.Chi2-best.fall, best.red))
 		next := cur.without(best.k)
 		if best.red <= max {
 			good := 0

@@ -232,7 +232,7 @@ func TestBusbarModelMisfitTold(t *testing.T) {
 			continue
 		}
 		t.Logf("alarm: %s", al.Message)
-		if !strings.Contains(al.Message, "flat bar") || !strings.Contains(al.Message, "most: b") {
+		if !strings.Contains(al.Message, "flat bar") || !strings.Contains(al.Message, "removes: b") {
 			t.Errorf("noise %s: alarm %q names neither the sensors nor an extended conductor", noise, al.Message)
 		}
 		if anyAlarm(alarms, AlarmInconsistent) || len(e.Missing) > 0 {
