@@ -352,10 +352,12 @@ func localMisfit(r *route.Route, k int) bool {
 
 // neighbours returns the currents and sigmas of the nearest usable
 // stations either side of the station with the given key (in route order).
+// The sigmas are as the route's steps take them (route
+// Placed.RouteSigma).
 func neighbours(r *route.Route, key string, skip map[string]bool) (cur, sig []float64) {
-	for _, p := range neighbourStations(r, key, skip) {
+	for _, p := range neighbourPlaced(r, key, skip) {
 		cur = append(cur, math.Abs(p.Current))
-		sig = append(sig, p.CurrentSigma)
+		sig = append(sig, p.RouteSigma())
 	}
 	return cur, sig
 }
@@ -363,6 +365,14 @@ func neighbours(r *route.Route, key string, skip map[string]bool) (cur, sig []fl
 // neighbourStations returns the nearest usable stations either side of the
 // station with the given key (in route order), as neighbours takes them.
 func neighbourStations(r *route.Route, key string, skip map[string]bool) (near []*route.Station) {
+	for _, p := range neighbourPlaced(r, key, skip) {
+		near = append(near, &p.Station)
+	}
+	return near
+}
+
+// neighbourPlaced returns the stations neighbourStations returns, placed.
+func neighbourPlaced(r *route.Route, key string, skip map[string]bool) (near []*route.Placed) {
 	at := -1
 	for k := range r.Stations {
 		if r.Stations[k].Key == key {
@@ -377,7 +387,7 @@ func neighbourStations(r *route.Route, key string, skip map[string]bool) (near [
 		for k := at + dir; k >= 0 && k < len(r.Stations); k += dir {
 			p := &r.Stations[k]
 			if p.OK && !p.Dipole && !skip[p.Key] {
-				near = append(near, &p.Station)
+				near = append(near, p)
 				break
 			}
 		}

@@ -561,7 +561,8 @@ func caveatTradedSteps(r *route.Route, fits []Fit, ac bool) {
 		if !ac {
 			dp = sb.Current - sa.Current
 		}
-		sp := math.Hypot(sa.CurrentSigma, sb.CurrentSigma)
+		// As the route's steps take them (route Placed.RouteSigma).
+		sp := math.Hypot(sa.RouteSigma(), sb.RouteSigma())
 		ca, _, _ := circuitOf(&fits[ia], ac)
 		cb, _, _ := circuitOf(&fits[ib], ac)
 		if ca == nil || cb == nil || !(ca.Spacing > 0) || !(cb.Spacing > 0) {
@@ -659,8 +660,9 @@ func caveatTradedTrackSteps(tr, r *route.Route, fits []Fit, members []trackSourc
 		}
 		dp := math.Abs(pb.Current) - math.Abs(pa.Current)
 		dl := math.Abs(lb.Current) - math.Abs(la.Current)
-		sp := math.Hypot(pa.CurrentSigma, pb.CurrentSigma)
-		sl := math.Hypot(la.CurrentSigma, lb.CurrentSigma)
+		// As the routes' steps take them (route Placed.RouteSigma).
+		sp := math.Hypot(pa.RouteSigma(), pb.RouteSigma())
+		sl := math.Hypot(la.RouteSigma(), lb.RouteSigma())
 		if !(math.Abs(dp) > 3*sp) || !(math.Abs(math.Abs(dl)-math.Abs(dp)) <= math.Max(3*math.Hypot(sp, sl), 0.25*math.Abs(dl))) {
 			continue
 		}

@@ -238,12 +238,14 @@ func endOf(ps []Placed, idx []int, set *Settings) (Finding, bool) {
 		p := &ps[i]
 		lo, hi = math.Min(lo, p.Depth), math.Max(hi, p.Depth)
 		keys = append(keys, p.Key)
+		// The fit's own sigmas in its problem, as the fit gives them.
+		cs, ds := fitSigmas(p)
 		if far(p, ref) {
 			p.Problem = fmt.Sprintf("the fit finds only a line %s m deep carrying %s A, over %.2g times as deep as the conductor before it (%.3g m), too deep for its current to be read as the conductor's: the field beyond the conductor's end, not the conductor",
-				pm(p.Depth, p.DepthSigma), pm(math.Abs(p.Current), p.CurrentSigma), endFar, ref.depth)
+				pm(p.Depth, ds), pm(math.Abs(p.Current), cs), endFar, ref.depth)
 		} else {
 			p.Problem = fmt.Sprintf("the fit finds only a line %s m deep carrying %s A, over %.2g times as deep as the conductor before it (%.3g m) with %.0f%% of its current (%.3g A), short of it as past an end and not as where a conductor dives: the field beyond the conductor's end, not the conductor",
-				pm(p.Depth, p.DepthSigma), pm(math.Abs(p.Current), p.CurrentSigma), endDepth, ref.depth, 100*math.Abs(p.Current)/ref.current, ref.current)
+				pm(p.Depth, ds), pm(math.Abs(p.Current), cs), endDepth, ref.depth, 100*math.Abs(p.Current)/ref.current, ref.current)
 			clo, chi = math.Min(clo, math.Abs(p.Current)), math.Max(chi, math.Abs(p.Current))
 		}
 		p.OK = false

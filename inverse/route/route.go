@@ -9,9 +9,13 @@ import (
 
 // Placed is a station on the route.
 type Placed struct {
-	// whitened is set when unwidenPoor took the station's sigmas back
-	// from the fit's widening (Station.Widening).
-	whitened bool
+	// whitened is set while the station's sigmas are taken back from the
+	// fit's widening (Station.Widening) for the route's own analysis
+	// (unwidenPoor), and fitSigma holds the fit's own current, depth and
+	// phase sigmas, which rewidenPoor gives back before Build returns;
+	// routeWhite is kept set on such a station after that (RouteSigma).
+	whitened, routeWhite bool
+	fitSigma             [3]float64
 	// Station is the caller's station with Dir made a unit vector
 	// pointing along increasing chainage; Current (or Phase for AC) is
 	// adjusted when that flipped Dir.
@@ -157,6 +161,16 @@ func Build(stations []Station, set *Settings) (*Route, error) {
 	}
 	r.Findings = append(r.Findings, st...)
 	r.Findings = append(r.Findings, ends...)
+	// The steps and ends are sized: every station gives its fit's own
+	// sigmas again, as the caller's fits give them, to the findings below
+	// (cover, poor fits, stretches not searched) and in Stations.
+	rewidenPoor(r.Stations)
+	if sc != nil {
+		pub := scaleWalks(r.Stations, sc)
+		for k := range r.Stations {
+			r.Stations[k].FirstWalkCurrentSigma = pub[k].CurrentSigma
+		}
+	}
 	r.Findings = append(r.Findings, cover(r.Stations, set)...)
 	for _, f := range quality(r.Stations, set, st) {
 		if f.Kind == KindPoorFit && len(f.Keys) == 1 && notes[f.Keys[0]] != "" {

@@ -129,37 +129,79 @@ func unwidened(p *Placed) float64 {
 
 // unwidenPoor takes the sigmas of each poor fit (not clean: a problem, or
 // a reduced chi-square over the limit) as they were before the fit widened
-// them for residuals correlated along the readings (Station.Widening): a
-// poor fit's misfit is the model's, which the poor-fit findings name and
-// the route counts (misfitSigma, strain.go), and its correlation would be
-// counted twice. Past a cable's end the field of the end, fitted as a line
-// 4.9 m deep with 74% of the current, had its shortfall of current hidden
-// by a 2.7 times wider sigma, and the end went unreported.
+// them for residuals correlated along the readings (Station.Widening), for
+// the route's own analysis (steps, strain, ends): a poor fit's misfit is
+// the model's, which the poor-fit findings name and the route counts
+// (misfitSigma, strain.go), and its correlation would be counted twice.
+// Past a cable's end the field of the end, fitted as a line 4.9 m deep
+// with 74% of the current, had its shortfall of current hidden by a 2.7
+// times wider sigma, and the end went unreported. rewidenPoor gives the
+// fit's own sigmas back once that analysis is done.
 func unwidenPoor(ps []Placed, set *Settings) {
 	for i := range ps {
 		p := &ps[i]
 		if p.Widening > 1 && !clean(p, set) && !p.whitened {
 			w := p.Widening
+			p.fitSigma = [3]float64{p.CurrentSigma, p.DepthSigma, p.PhaseSigma}
 			p.CurrentSigma /= w
 			p.DepthSigma /= w
 			p.PhaseSigma /= w
 			// Widening is kept (a further conductor's station copies
 			// this one's Station, with its own widened sigmas).
-			p.whitened = true
+			p.whitened, p.routeWhite = true, true
 		}
 	}
+}
+
+// rewidenPoor gives each station that unwidenPoor took back its fit's own
+// sigmas: the station is published (Route.Stations, and through them the
+// report's route, its least cover and plots) as its fit gives it, as the
+// report's table of fits does. Before, a poor fit whose sigmas the
+// correlation of its residuals had widened 5.7 times gave its cover as
+// 1.0814 ± 0.0089 m in the table and 1.0814 ± 0.0016 m as the survey's
+// least cover (truth 1.100 m: 2.1 and 11.6 sigma off).
+func rewidenPoor(ps []Placed) {
+	for i := range ps {
+		p := &ps[i]
+		if p.whitened {
+			p.CurrentSigma, p.DepthSigma, p.PhaseSigma = p.fitSigma[0], p.fitSigma[1], p.fitSigma[2]
+			p.whitened = false
+		}
+	}
+}
+
+// fitSigmas are the station's current and depth sigmas as its fit gives
+// them, while unwidenPoor has taken them back as well as after.
+func fitSigmas(p *Placed) (current, depth float64) {
+	if p.whitened {
+		return p.fitSigma[0], p.fitSigma[1]
+	}
+	return p.CurrentSigma, p.DepthSigma
+}
+
+// RouteSigma is the station's current sigma as the route's steps take it:
+// for a poor fit whose residuals are correlated along the readings, as
+// before the fit widened it for them (unwidenPoor; Station.Widening),
+// else CurrentSigma. A caller weighing a change of current between
+// stations as the steps do takes this, not CurrentSigma, which is the
+// fit's own.
+func (p *Placed) RouteSigma() float64 {
+	if p.routeWhite {
+		return unwidened(p)
+	}
+	return p.CurrentSigma
 }
 
 // NoiseSigma is the station's current sigma for the reading noise: at a
 // strained station, whose misfit the route takes for the model's error
 // (and counts by its shift), the sigma before the fit widened it for
 // residuals correlated along the readings, a correlation that is the
-// misfit's (Station.Widening); else CurrentSigma.
+// misfit's (Station.Widening); else RouteSigma.
 func (p *Placed) NoiseSigma() float64 {
 	if p.strained {
 		return unwidened(p)
 	}
-	return p.CurrentSigma
+	return p.RouteSigma()
 }
 
 // WhiteSigma is the station's current sigma for independent readings: as
