@@ -743,7 +743,9 @@ type Finding struct {
 	// Severity is SeverityWarning, SeverityCaution or SeverityInfo.
 	Severity string `json:"severity"`
 	// ChainageFrom and ChainageTo bracket the finding along the route,
-	// m; a current step lies between them.
+	// m; a current step lies between them, and a shallow-cover stretch
+	// may reach from one to the other (the nearest stations with enough
+	// cover either side; Groups are the stations that fail).
 	ChainageFrom float64 `json:"chainage_from_m"`
 	ChainageTo   float64 `json:"chainage_to_m"`
 	// Position is the best location, m.

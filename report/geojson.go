@@ -7,6 +7,8 @@ import (
 	"io"
 	"math"
 	"strings"
+
+	"undercurrent/inverse/route"
 )
 
 // GeoJSON frame markers, in the top-level "coordinate_frame" member.
@@ -102,7 +104,9 @@ const (
 //     sigmas as for a conductor, and the magnitude of its moment,
 //     moment_a_m2, with its sigma moment_sigma_a_m2, as its dipole-anomaly
 //     finding gives them;
-//   - "finding": one Point per finding at its position, with kind,
+//   - "finding": one Point per finding at its position (for a shallow-cover
+//     stretch a LineString along its conductor's route over its chainage
+//     range, the stretch where the cover may be short: stretchLine), with kind,
 //     severity, chainage range and message, "conductor" (1 for the
 //     route's conductor, the track's number for a further one, as
 //     findings.csv gives it; absent for a lone line), "lone_line": true when it is about a further
@@ -310,7 +314,11 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 				props[k] = json.Number(sig(v.Value))
 			}
 		}
-		fc.Features = append(fc.Features, feature{Type: "Feature", Geometry: d.point(f.Position), Properties: props})
+		geom := d.point(f.Position)
+		if g, ok := d.stretchLine(&f); ok {
+			geom = g
+		}
+		fc.Features = append(fc.Features, feature{Type: "Feature", Geometry: geom, Properties: props})
 	}
 	// What a map viewer must show with every feature: viewers drop a
 	// FeatureCollection's foreign members, so the cautions, the run's
@@ -472,6 +480,43 @@ func (d *Document) line(pts [][3]float64) geometry {
 
 func along(p, dir [3]float64, t float64) [3]float64 {
 	return [3]float64{p[0] + t*dir[0], p[1] + t*dir[1], p[2] + t*dir[2]}
+}
+
+// stretchLine is the plan line of a shallow-cover finding f that spans
+// stations: its conductor's route through the used stations from
+// f.ChainageFrom to f.ChainageTo (the nearest stations with enough cover
+// either side, route.Finding), the stretch where the cover may be short. A
+// map showed the demo's 20 m of shallow cable as one dot (found in
+// review). Repeats of a station (a route walked again, at its chainage)
+// are drawn once. ok is false for any other finding, a lone line's, one
+// at a single chainage, or when fewer than two stations lie in the range:
+// the finding is then a Point.
+func (d *Document) stretchLine(f *Finding) (geometry, bool) {
+	if f.Kind != string(route.KindShallowCover) || f.Lone || !(f.ChainageTo > f.ChainageFrom) {
+		return geometry{}, false
+	}
+	n := f.Conductor
+	if n == 0 {
+		n = 1
+	}
+	r := d.conductorRoute(n)
+	if r == nil {
+		return geometry{}, false
+	}
+	const tol = 1e-6 // m: the bracket's ends are stations' own chainages
+	var pts [][3]float64
+	last := math.Inf(-1)
+	for _, s := range r.Stations {
+		if !s.Used || s.Chainage < f.ChainageFrom-tol || s.Chainage > f.ChainageTo+tol || s.Chainage <= last+tol {
+			continue
+		}
+		pts = append(pts, s.Point)
+		last = s.Chainage
+	}
+	if len(pts) < 2 {
+		return geometry{}, false
+	}
+	return d.line(pts), true
 }
 
 // valueKey is the property name of a finding's value: its name in

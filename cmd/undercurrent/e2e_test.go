@@ -671,6 +671,14 @@ func TestDemo(t *testing.T) {
 				if v := f.Values[0]; v.Sigma < 0.02 || !within(v.Value, 0.40, v.Sigma) {
 					t.Errorf("shallow cover %+v, want 0.40 m within %d sigma and a sigma of at least the ground's 0.02 m", v, kSigma)
 				}
+				// The cover is under the 0.60 m minimum from about 55.8
+				// to 74.2 m (the scenario's vertices, interpolated as
+				// inverse/route's TestCoverBracketHoldsTrueCrossings does),
+				// between traverses: the range must hold both, not stop at
+				// the failing T13 and T15 (60-70 m; found in review).
+				if f.From > 55.8 || f.To < 74.2 {
+					t.Errorf("shallow stretch %.1f-%.1f m, want it to hold 55.8-74.2 m", f.From, f.To)
+				}
 			}
 		}
 	}

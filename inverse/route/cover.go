@@ -6,7 +6,14 @@ import (
 )
 
 // cover reports runs of usable stations whose cover may be shallower than
-// Settings.MinCover.
+// Settings.MinCover. Each run's finding is bracketed (Finding.From, To) by
+// the nearest usable stations either side whose cover passes the check:
+// the stations between do not show where the cover changes, so the
+// shallow stretch may reach them (on the demo the cover is under 0.60 m
+// from about chainage 55.8 to 74.2 m while only T13-T15, 60-70 m, fail;
+// found in review). Where no station on a side passes, the bracket ends at
+// the run's own end station and the message says the shallow cover may
+// continue past it.
 func cover(ps []Placed, set *Settings) []Finding {
 	if set == nil || set.MinCover <= 0 {
 		return nil
@@ -14,12 +21,13 @@ func cover(ps []Placed, set *Settings) []Finding {
 	k := set.coverK()
 	var out []Finding
 	var run []*Placed
+	var before *Placed // the last usable station with enough cover
 	sev := SeverityCaution
-	flush := func() {
+	flush := func(after *Placed) {
 		if len(run) == 0 {
 			return
 		}
-		out = append(out, coverFinding(run, sev, set, len(ps) == 1))
+		out = append(out, coverFinding(run, before, after, sev, set, len(ps) == 1))
 		run, sev = nil, SeverityCaution
 	}
 	for i := range ps {
@@ -29,7 +37,8 @@ func cover(ps []Placed, set *Settings) []Finding {
 		}
 		c, sc := set.cover(p.Depth, p.DepthSigma)
 		if c-k*sc >= set.MinCover {
-			flush()
+			flush(p)
+			before = p
 			continue
 		}
 		run = append(run, p)
@@ -37,11 +46,14 @@ func cover(ps []Placed, set *Settings) []Finding {
 			sev = SeverityWarning
 		}
 	}
-	flush()
+	flush(nil)
 	return out
 }
 
-func coverFinding(run []*Placed, sev Severity, set *Settings, single bool) Finding {
+// coverFinding is the finding of one run of shallow stations, before and
+// after the nearest usable stations either side with enough cover (nil
+// where there is none).
+func coverFinding(run []*Placed, before, after *Placed, sev Severity, set *Settings, single bool) Finding {
 	low := run[0]
 	for _, p := range run[1:] {
 		if p.Depth < low.Depth {
@@ -76,6 +88,16 @@ func coverFinding(run []*Placed, sev Severity, set *Settings, single bool) Findi
 			msg += fmt.Sprintf("; best determined at %s (chainage %.1f m): %s m", label(run[b]), run[b].Chainage, pm(covers[b], sigmas[b]))
 		}
 	}
+	if !single {
+		msg += "; " + coverReach(run, before, after)
+	}
+	from, to := run[0].Chainage, run[len(run)-1].Chainage
+	if before != nil {
+		from = before.Chainage
+	}
+	if after != nil {
+		to = after.Chainage
+	}
 	keys := make([]string, len(run))
 	for i, p := range run {
 		keys[i] = p.Key
@@ -83,8 +105,8 @@ func coverFinding(run []*Placed, sev Severity, set *Settings, single bool) Findi
 	return Finding{
 		Kind:     KindShallowCover,
 		Severity: sev,
-		From:     run[0].Chainage,
-		To:       run[len(run)-1].Chainage,
+		From:     from,
+		To:       to,
 		Position: low.Point,
 		Keys:     keys,
 		Message:  msg,
@@ -93,6 +115,26 @@ func coverFinding(run []*Placed, sev Severity, set *Settings, single bool) Findi
 			{Name: "minimum cover", Value: set.MinCover, Unit: "m"},
 		},
 	}
+}
+
+// coverReach says how far a run of shallow stations may reach: to the
+// nearest stations either side with enough cover, or past the run's end
+// station where no station on that side has enough.
+func coverReach(run []*Placed, before, after *Placed) string {
+	first, last := run[0], run[len(run)-1]
+	name := func(p *Placed) string { return fmt.Sprintf("%s (chainage %.1f m)", label(p), p.Chainage) }
+	switch {
+	case before != nil && after != nil:
+		return fmt.Sprintf("the shallow stretch may reach back to %s and on to %s, the nearest stations either side with enough cover", name(before), name(after))
+	case before != nil:
+		return fmt.Sprintf("the shallow stretch may reach back to %s, the nearest station before it with enough cover, and on past %s, as no station after it has enough cover", name(before), name(last))
+	case after != nil:
+		return fmt.Sprintf("the shallow stretch may reach back past %s, as no station before it has enough cover, and on to %s, the nearest station after it with enough cover", name(first), name(after))
+	}
+	if first == last {
+		return fmt.Sprintf("no other station has enough cover, so the shallow cover may continue past %s either way", name(first))
+	}
+	return fmt.Sprintf("no other station has enough cover, so the shallow cover may continue back past %s and on past %s", name(first), name(last))
 }
 
 // pm formats v ± s as PlusMinus does (s to two significant digits, v to

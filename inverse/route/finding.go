@@ -100,7 +100,10 @@ type Finding struct {
 	Kind     Kind
 	Severity Severity
 	// From and To are the chainage range, m (equal for a single station).
-	// A step lies between the two stations at From and To.
+	// A step lies between the two stations at From and To. A shallow-cover
+	// stretch may reach from From to To: they are the nearest usable
+	// stations either side with enough cover (the run's own end station
+	// where a side has none), and Keys are the stations that fail.
 	From, To float64
 	// Position is the best location, m ENU (the midpoint of a step's
 	// bracket).

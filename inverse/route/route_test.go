@@ -371,9 +371,11 @@ func TestShallowCover(t *testing.T) {
 	if len(cov) != 2 {
 		t.Fatalf("got %d cover findings, want 2: %+v", len(cov), cov)
 	}
+	// The stations T05-T07 fail; the stretch is bracketed by the nearest
+	// stations with enough cover, T04 and T08 (cover.go).
 	w := cov[0]
-	if w.Severity != SeverityWarning || !near(w.From, 5*cpSpacing) || !near(w.To, 7*cpSpacing) {
-		t.Errorf("first cover finding %s %g..%g m, want warning 100..140 m", w.Severity, w.From, w.To)
+	if w.Severity != SeverityWarning || !near(w.From, 4*cpSpacing) || !near(w.To, 8*cpSpacing) || strings.Join(w.Keys, " ") != "T05 T06 T07" {
+		t.Errorf("first cover finding %s %g..%g m at %v, want warning 80..160 m at T05 T06 T07", w.Severity, w.From, w.To, w.Keys)
 	}
 	if math.Abs(w.Values[0].Value-0.42) > 1e-12 || w.Position != st[6].Point {
 		t.Errorf("shallowest cover %v at %v, want 0.42 m at T06", w.Values[0], w.Position)
@@ -381,8 +383,8 @@ func TestShallowCover(t *testing.T) {
 	if !strings.Contains(w.Message, "NEC Table 300.5") {
 		t.Errorf("message %q does not name the code", w.Message)
 	}
-	if c := cov[1]; c.Severity != SeverityCaution || !near(c.From, 20*cpSpacing) {
-		t.Errorf("second cover finding %s at %g m, want caution at 400 m", c.Severity, c.From)
+	if c := cov[1]; c.Severity != SeverityCaution || !near(c.From, 19*cpSpacing) || !near(c.To, 21*cpSpacing) || strings.Join(c.Keys, " ") != "T20" {
+		t.Errorf("second cover finding %s %g..%g m at %v, want caution 380..420 m at T20", c.Severity, c.From, c.To, c.Keys)
 	}
 	// Without a minimum there is no cover check.
 	r, _ = Build(st, &Settings{SensorHeight: sensor})
