@@ -50,14 +50,23 @@ var findingsHeader = []string{
 // named "=1+2") gets a leading apostrophe, so that a spreadsheet shows it
 // as text rather than running it as a formula.
 func WriteFindingsCSV(w io.Writer, d *Document) error {
+	return WriteFindingsCSVWith(w, d, CSVOptions{})
+}
+
+// WriteFindingsCSVWith is WriteFindingsCSV in the style opt asks for:
+// with opt.DecimalComma, a semicolon between fields and a decimal comma in
+// every number (chainages, positions, longitude and latitude), the text
+// cells (values and message too) as WriteFindingsCSV writes them.
+func WriteFindingsCSVWith(w io.Writer, d *Document, opt CSVOptions) error {
 	if err := d.Validate(); err != nil {
 		return err
 	}
 	if _, err := io.WriteString(w, utf8BOM); err != nil {
 		return fmt.Errorf("report: writing findings CSV: %w", err)
 	}
-	cw := csv.NewWriter(w)
-	if err := cw.Write(findingsHeader); err != nil {
+	wr := csv.NewWriter(w)
+	cw := newCSVRowWriter(wr, opt, findingsHeader, findingsTextColumns...)
+	if err := wr.Write(findingsHeader); err != nil {
 		return fmt.Errorf("report: writing findings CSV: %w", err)
 	}
 	for _, c := range Cautions {
@@ -109,8 +118,8 @@ func WriteFindingsCSV(w io.Writer, d *Document) error {
 			return fmt.Errorf("report: writing findings CSV: %w", err)
 		}
 	}
-	cw.Flush()
-	if err := cw.Error(); err != nil {
+	wr.Flush()
+	if err := wr.Error(); err != nil {
 		return fmt.Errorf("report: writing findings CSV: %w", err)
 	}
 	return nil

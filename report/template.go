@@ -204,7 +204,8 @@ footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rul
 {{with .CoverSigma}}<dt>Cover uncertainty</dt><dd>{{.}}</dd>{{end}}
 <dt>Minimum cover</dt><dd>{{with .D.MinCover}}{{printf "%.2f" .Depth}} m{{with .Code}} ({{.}}){{else}} (no code named){{end}}{{else}}not given: no cover check (published codes differ by country){{end}}</dd>
 {{range .Settings}}<dt>{{index . 0}}</dt><dd>{{index . 1}}</dd>
-{{end}}</dl>
+{{end}}<dt>Tables for spreadsheets</dt><dd>{{.CSVText}}</dd>
+</dl>
 {{if .D.Inputs}}<h3>Input files</h3>
 <div class="wide"><table>
 <thead><tr><th>Role</th><th>File</th><th>Readings</th><th>SHA-256</th></tr></thead>
