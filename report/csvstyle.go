@@ -71,4 +71,4 @@ var csvTextColumns = []string{
 }
 
 // findingsTextColumns are the columns of findings.csv that hold text.
-var findingsTextColumns = []string{"severity", "kind", "groups", "values", "message"}
+var findingsTextColumns = []string{"severity", "kind", "groups", "values", "message", "value_name", "value_unit"}

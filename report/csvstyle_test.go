@@ -167,3 +167,111 @@ func TestCSVDecimalCommaOnlyCSVChanges(t *testing.T) {
 		t.Errorf("the decimal-comma files are told as %q; want the semicolon and 60,015 named", commaText)
 	}
 }
+
+// TestFindingsCSVNumbers: findings.csv gives each finding's first value
+// (value_name, value, value_sigma, value_unit) and its cover
+// (cover_m, cover_sigma_m, from the value named "cover" or "depth below
+// ground") as numbers a spreadsheet sorts, after the 13 columns it had,
+// which keep their places. Before, a shallow stretch's cover was only in
+// the values text ("cover = 0.400 ± 0.020 m; minimum cover = 0.6 m";
+// found in review). The numbers are the document's (results.json's
+// findings[].values) to the digits the file keeps: two past the sigma's
+// leading one, six significant digits without a sigma.
+func TestFindingsCSVNumbers(t *testing.T) {
+	d := fenwickLane(true)
+	d.Findings = append(d.Findings,
+		Finding{Kind: "shallow-cover", Severity: SeverityWarning, Message: "shallow",
+			Values: []Value{{Name: "cover", Value: 0.40046, Sigma: 0.0200007, Unit: "m"}, {Name: "minimum cover", Value: 0.6, Unit: "m"}}},
+		Finding{Kind: "weak-source", Severity: SeverityInfo, Message: "weak",
+			Values: []Value{{Name: "current", Value: 0.851, Sigma: 0.012, Unit: "A"}, {Name: "dip", Value: 72.13, Unit: "deg"},
+				{Name: "depth below ground", Value: 0.449, Sigma: 0.046, Unit: "m"}}},
+		Finding{Kind: "poor-fit", Severity: SeverityCaution, Message: "poor",
+			Values: []Value{{Name: "reduced chi-square", Value: 3780.123}}},
+		Finding{Kind: "shallow-cover", Severity: SeverityInfo, Message: "no values"},
+	)
+	var buf bytes.Buffer
+	if err := WriteFindingsCSV(&buf, d); err != nil {
+		t.Fatal(err)
+	}
+	recs := readRecords(t, buf.Bytes(), ',')
+	old := []string{"severity", "kind", "conductor", "chainage_from_m", "chainage_to_m", "groups",
+		"east_m", "north_m", "up_m", "lon_deg", "lat_deg", "values", "message"}
+	if !slices.Equal(recs[0][:len(old)], old) {
+		t.Fatalf("findings.csv's first columns %v, want %v as before", recs[0][:len(old)], old)
+	}
+	col := map[string]int{}
+	for i, h := range recs[0] {
+		col[h] = i
+	}
+	rows := recs[1+len(Cautions)+len(d.Warnings):]
+	if len(rows) != len(d.Findings) {
+		t.Fatalf("%d finding rows, want %d", len(rows), len(d.Findings))
+	}
+	num := func(s string) float64 {
+		v, err := strconv.ParseFloat(s, 64)
+		if err != nil {
+			t.Errorf("%q is no number", s)
+		}
+		return v
+	}
+	for i, f := range d.Findings {
+		r := rows[i]
+		if r[col["message"]] != f.Message {
+			t.Fatalf("row %d: message %q, want %q", i, r[col["message"]], f.Message)
+		}
+		if len(f.Values) == 0 {
+			for _, c := range []string{"value_name", "value", "value_sigma", "value_unit", "cover_m", "cover_sigma_m"} {
+				if r[col[c]] != "" {
+					t.Errorf("%s without values: %s %q, want it empty", f.Kind, c, r[col[c]])
+				}
+			}
+			continue
+		}
+		v := f.Values[0]
+		if r[col["value_name"]] != v.Name || r[col["value_unit"]] != v.Unit {
+			t.Errorf("%s: value_name %q, value_unit %q; want %q, %q", f.Kind, r[col["value_name"]], r[col["value_unit"]], v.Name, v.Unit)
+		}
+		// Two digits past the sigma's leading one: within a twentieth of
+		// the sigma; six significant digits without one.
+		tol := v.Sigma / 20
+		if v.Sigma == 0 {
+			tol = 1e-5 * max(1, abs(v.Value))
+			if r[col["value_sigma"]] != "" {
+				t.Errorf("%s: value_sigma %q for a value without one", f.Kind, r[col["value_sigma"]])
+			}
+		} else if got := num(r[col["value_sigma"]]); abs(got-v.Sigma) > 1e-5*v.Sigma {
+			t.Errorf("%s: value_sigma %v, want %v", f.Kind, got, v.Sigma)
+		}
+		if got := num(r[col["value"]]); abs(got-v.Value) > tol {
+			t.Errorf("%s: value %v, want %v within %v", f.Kind, got, v.Value, tol)
+		}
+		var cover *Value
+		for k := range f.Values {
+			if n := f.Values[k].Name; n == "cover" || n == "depth below ground" {
+				cover = &f.Values[k]
+				break
+			}
+		}
+		switch {
+		case cover == nil && (r[col["cover_m"]] != "" || r[col["cover_sigma_m"]] != ""):
+			t.Errorf("%s: cover_m %q without a cover value", f.Kind, r[col["cover_m"]])
+		case cover != nil:
+			if got := num(r[col["cover_m"]]); abs(got-cover.Value) > max(cover.Sigma/20, 5e-4) {
+				t.Errorf("%s: cover_m %v, want %v", f.Kind, got, cover.Value)
+			}
+			if got := num(r[col["cover_sigma_m"]]); abs(got-cover.Sigma) > 1e-5*cover.Sigma {
+				t.Errorf("%s: cover_sigma_m %v, want %v", f.Kind, got, cover.Sigma)
+			}
+		}
+	}
+	if r := rows[len(rows)-4]; r[col["cover_m"]] != "0.4005" || r[col["value"]] != "0.4005" {
+		t.Errorf("shallow stretch: cover_m %q, value %q; want 0.4005 (two digits past a sigma of 0.020)", r[col["cover_m"]], r[col["value"]])
+	}
+}
+
+func abs(v float64) float64 {
+	if v < 0 {
+		return -v
+	}
+	return v
+}
