@@ -132,11 +132,19 @@ var csvCol = func() map[string]int {
 // named "=1+2" or "-T09") gets a leading apostrophe, so that a spreadsheet
 // shows it as text rather than running it as a formula.
 func WriteCSV(w io.Writer, d *Document) error {
+	return WriteCSVWith(w, d, CSVOptions{})
+}
+
+// WriteCSVWith is WriteCSV in the style opt asks for: with
+// opt.DecimalComma, a semicolon between fields and a decimal comma in
+// every number, the text cells as WriteCSV writes them.
+func WriteCSVWith(w io.Writer, d *Document, opt CSVOptions) error {
 	if err := d.Validate(); err != nil {
 		return err
 	}
-	cw := csv.NewWriter(w)
-	if err := cw.Write(csvHeader); err != nil {
+	wr := csv.NewWriter(w)
+	cw := newCSVRowWriter(wr, opt, csvHeader, csvTextColumns...)
+	if err := wr.Write(csvHeader); err != nil {
 		return fmt.Errorf("report: writing CSV: %w", err)
 	}
 	for _, g := range d.Groups {
@@ -288,8 +296,8 @@ func WriteCSV(w io.Writer, d *Document) error {
 			}
 		}
 	}
-	cw.Flush()
-	if err := cw.Error(); err != nil {
+	wr.Flush()
+	if err := wr.Error(); err != nil {
 		return fmt.Errorf("report: writing CSV: %w", err)
 	}
 	return nil

@@ -78,7 +78,7 @@ func TestFurtherConductorChainage(t *testing.T) {
 		t.Fatal(err)
 	}
 	html := buf.String()
-	i := strings.Index(html, "<td>G04</td>")
+	i := strings.Index(html, `<td class="stick">G04</td>`)
 	if i < 0 {
 		t.Fatal("no G04 row in the HTML table")
 	}
@@ -209,7 +209,7 @@ func TestObjectMomentEverywhere(t *testing.T) {
 		t.Fatal(err)
 	}
 	html := buf.String()
-	i := strings.Index(html, "<td>T11</td>")
+	i := strings.Index(html, `<td class="stick">T11</td>`)
 	row := html[i : i+strings.Index(html[i:], "</tr>")]
 	cover := PlusMinus(0.9046-d.DepthReference.SensorHeight, 0.0213)
 	if !strings.Contains(row, cover) {

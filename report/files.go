@@ -29,6 +29,14 @@ const (
 // removed, and so is dir when WriteFiles created it: there is no partial
 // output directory.
 func WriteFiles(dir string, d *Document) error {
+	return WriteFilesWith(dir, d, CSVOptions{})
+}
+
+// WriteFilesWith is WriteFiles with results.csv and findings.csv written
+// in the style opt asks for (WriteCSVWith, WriteFindingsCSVWith), which
+// report.html's settings say with how to open them; results.json and
+// route.geojson are as WriteFiles writes them.
+func WriteFilesWith(dir string, d *Document, opt CSVOptions) error {
 	type out struct {
 		name  string
 		write func(io.Writer, *Document) error
@@ -36,10 +44,10 @@ func WriteFiles(dir string, d *Document) error {
 	}
 	files := []*out{
 		{name: FileJSON, write: WriteJSON},
-		{name: FileCSV, write: WriteCSV},
-		{name: FileFindings, write: WriteFindingsCSV},
+		{name: FileCSV, write: func(w io.Writer, d *Document) error { return WriteCSVWith(w, d, opt) }},
+		{name: FileFindings, write: func(w io.Writer, d *Document) error { return WriteFindingsCSVWith(w, d, opt) }},
 		{name: FileGeoJSON, write: WriteGeoJSON},
-		{name: FileHTML, write: WriteHTML},
+		{name: FileHTML, write: func(w io.Writer, d *Document) error { return writeHTML(w, d, opt) }},
 	}
 	for _, f := range files {
 		var buf bytes.Buffer

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"slices"
 	"strconv"
 	"strings"
 )
@@ -13,7 +14,11 @@ import (
 var findingsHeader = []string{
 	"severity", "kind", "conductor", "chainage_from_m", "chainage_to_m", "groups",
 	"east_m", "north_m", "up_m", "lon_deg", "lat_deg", "values", "message",
+	"value_name", "value", "value_sigma", "value_unit", "cover_m", "cover_sigma_m",
 }
+
+// findingsMessage is the index of findings.csv's message column.
+var findingsMessage = slices.Index(findingsHeader, "message")
 
 // WriteFindingsCSV writes the findings, one row each, in the document's
 // order (most pressing first at each chainage; see SortFindings), for a
@@ -24,7 +29,19 @@ var findingsHeader = []string{
 // (with longitude and latitude when the document is geo-referenced), the
 // numbers behind the finding as "name = value ± sigma unit" (four
 // significant digits for a value without a sigma) joined by "; ", and the
-// message.
+// message. Then, for a spreadsheet to sort and filter on, the finding's
+// first value (the one its message leads with: a shallow stretch's least
+// cover, a step's size, a weak source's current, a poor fit's reduced
+// chi-square, an object's east) as numbers: value_name, value,
+// value_sigma (empty when the value has none) and value_unit (empty for
+// a dimensionless value); and cover_m and cover_sigma_m, its value named
+// "cover" or "depth below ground" (a shallow stretch's, a weak source's,
+// an object's), empty for a finding without one. They were in the values
+// text alone, where a crew could not sort by cover (found in review).
+// Numbers are written as results.csv writes them: a sigma to six
+// significant digits, a value to two digits past its sigma's leading one
+// (six significant digits without a sigma), cover to the millimetre at
+// least.
 //
 // The first rows, before the findings, are the safety cautions every crew
 // report carries (Cautions), one row each with severity "caution", kind
@@ -50,26 +67,35 @@ var findingsHeader = []string{
 // named "=1+2") gets a leading apostrophe, so that a spreadsheet shows it
 // as text rather than running it as a formula.
 func WriteFindingsCSV(w io.Writer, d *Document) error {
+	return WriteFindingsCSVWith(w, d, CSVOptions{})
+}
+
+// WriteFindingsCSVWith is WriteFindingsCSV in the style opt asks for:
+// with opt.DecimalComma, a semicolon between fields and a decimal comma in
+// every number (chainages, positions, longitude and latitude), the text
+// cells (values and message too) as WriteFindingsCSV writes them.
+func WriteFindingsCSVWith(w io.Writer, d *Document, opt CSVOptions) error {
 	if err := d.Validate(); err != nil {
 		return err
 	}
 	if _, err := io.WriteString(w, utf8BOM); err != nil {
 		return fmt.Errorf("report: writing findings CSV: %w", err)
 	}
-	cw := csv.NewWriter(w)
-	if err := cw.Write(findingsHeader); err != nil {
+	wr := csv.NewWriter(w)
+	cw := newCSVRowWriter(wr, opt, findingsHeader, findingsTextColumns...)
+	if err := wr.Write(findingsHeader); err != nil {
 		return fmt.Errorf("report: writing findings CSV: %w", err)
 	}
 	for _, c := range Cautions {
 		row := make([]string, len(findingsHeader))
-		row[0], row[1], row[len(row)-1] = SeverityCaution, SafetyKind, c
+		row[0], row[1], row[findingsMessage] = SeverityCaution, SafetyKind, c
 		if err := cw.Write(row); err != nil {
 			return fmt.Errorf("report: writing findings CSV: %w", err)
 		}
 	}
 	for _, m := range d.Warnings {
 		row := make([]string, len(findingsHeader))
-		row[0], row[1], row[len(row)-1] = SeverityWarning, RunWarningKind, textCell(m)
+		row[0], row[1], row[findingsMessage] = SeverityWarning, RunWarningKind, textCell(m)
 		if err := cw.Write(row); err != nil {
 			return fmt.Errorf("report: writing findings CSV: %w", err)
 		}
@@ -105,15 +131,39 @@ func WriteFindingsCSV(w io.Writer, d *Document) error {
 			fix(f.Position[0], 3), fix(f.Position[1], 3), fix(f.Position[2], 3), lon, lat,
 			textCell(strings.Join(vals, "; ")), textCell(f.Message),
 		}
+		row = append(row, findingNumbers(f.Values)...)
 		if err := cw.Write(row); err != nil {
 			return fmt.Errorf("report: writing findings CSV: %w", err)
 		}
 	}
-	cw.Flush()
-	if err := cw.Error(); err != nil {
+	wr.Flush()
+	if err := wr.Error(); err != nil {
 		return fmt.Errorf("report: writing findings CSV: %w", err)
 	}
 	return nil
+}
+
+// findingNumbers are the cells value_name, value, value_sigma,
+// value_unit, cover_m and cover_sigma_m of a finding with values vs
+// (WriteFindingsCSV).
+func findingNumbers(vs []Value) []string {
+	out := make([]string, 6)
+	if len(vs) > 0 {
+		v := vs[0]
+		out[0], out[3] = textCell(v.Name), v.Unit
+		if s := sigCell(v.Sigma); s != "" {
+			out[1], out[2] = fixSig(v.Value, v.Sigma, 0), s
+		} else {
+			out[1] = sig(v.Value)
+		}
+	}
+	for _, v := range vs {
+		if v.Name == "cover" || v.Name == "depth below ground" {
+			out[4], out[5] = fixSig(v.Value, v.Sigma, 3), sigCell(v.Sigma)
+			break
+		}
+	}
+	return out
 }
 
 // SafetyKind is the kind of the rows of findings.csv that hold the

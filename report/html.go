@@ -30,6 +30,12 @@ const MaxProfilePlots = 4
 // a table of every group; and the inputs, corrections, frame and settings.
 // Plots are drawn with gonum.org/v1/plot and embedded as inline SVG.
 func WriteHTML(w io.Writer, d *Document) error {
+	return writeHTML(w, d, CSVOptions{})
+}
+
+// writeHTML is WriteHTML for results.csv and findings.csv written in the
+// style opt says, which the settings tell with how to open them.
+func writeHTML(w io.Writer, d *Document, opt CSVOptions) error {
 	if err := d.Validate(); err != nil {
 		return err
 	}
@@ -37,6 +43,7 @@ func WriteHTML(w io.Writer, d *Document) error {
 	if err != nil {
 		return err
 	}
+	v.CSVText = csvText(opt)
 	if err := crewTemplate.Execute(w, v); err != nil {
 		return fmt.Errorf("report: writing HTML: %w", err)
 	}
@@ -52,6 +59,9 @@ type view struct {
 	// Scatter gives the between-station scatter when there is one.
 	SigmaNote string
 	Scatter   string
+	// CSVText says how results.csv and findings.csv are written and how
+	// to open them in a spreadsheet (csvText).
+	CSVText string
 	// ShowSite is true when the site name differs from the title.
 	ShowSite bool
 	// CoverNA is true when the ground is not known, so the table's cover
@@ -269,6 +279,18 @@ func newView(d *Document) (*view, error) {
 		return nil, err
 	}
 	return v, nil
+}
+
+// csvText says how results.csv and findings.csv are written in the style
+// opt and how a spreadsheet reads them right. A spreadsheet set to a
+// language that writes decimals with a comma takes a comma-separated
+// file's "60.015" for 60015 and "0.40045" for text; one set to English
+// takes a semicolon-separated file's "60,015" for 60015 (found in review).
+func csvText(opt CSVOptions) string {
+	if opt.DecimalComma {
+		return "results.csv and findings.csv separate their fields with semicolons and write decimals with a comma (60,015), for a spreadsheet set to a language that writes them so (German, French, ...), which opens them as they are. A spreadsheet set to English reads 60,015 as 60015: import them naming the semicolon as separator and such a language for the numbers."
+	}
+	return "results.csv and findings.csv separate their fields with commas and write decimals with a point (60.015). A spreadsheet set to a language that writes decimals with a comma (German, French, ...) reads 60.015 as 60015 or as text: import them naming the comma as separator and English for the numbers, or write them with --csv-decimal-comma (semicolons and decimal commas)."
 }
 
 // settingShown are the options of a run that the rows above the settings

@@ -60,3 +60,70 @@ func TestPhoneLayout(t *testing.T) {
 		}
 	}
 }
+
+// TestPhoneGroupsTable: on a phone the table of every group (about 1150
+// px wide on the demo, in a 370 px column) keeps its Group and Chainage
+// columns in view while it scrolls sideways (position: sticky, with a
+// background so that the columns scrolled under them do not show
+// through), and its Fit column gives a poor fit's status only, with the
+// explanation in the list below the table, as print does. Before, once
+// scrolled to Cover the row labels were gone and a poor fit's text, three
+// words a line, made its row about 1000 px tall (found in review, Chromium
+// at 390 px). The rules sit in the small-screen block alone, so that the
+// wide screen's layout and print's are unchanged.
+func TestPhoneGroupsTable(t *testing.T) {
+	d := fenwickLane(true)
+	const why = "the readings miss the fitted conductor by 12 times the noise, more than the 2 times allowed"
+	d.Groups[3].Problem = why
+	var buf bytes.Buffer
+	if err := WriteHTML(&buf, d); err != nil {
+		t.Fatal(err)
+	}
+	page := buf.String()
+	const head = "@media screen and (max-width: 40rem) {"
+	start := strings.Index(page, head)
+	if start < 0 {
+		t.Fatal("no small-screen block in the page's CSS")
+	}
+	end := strings.Index(page[start:], "\n}\n")
+	if end < 0 {
+		t.Fatal("the small-screen block does not end")
+	}
+	narrow := page[start : start+end]
+	css := page[:strings.Index(page, "</style>")]
+	outside := strings.Replace(css, narrow, "", 1)
+	for _, want := range []string{
+		"table.groups .stick { position: sticky; left: 0; z-index: 1; background: var(--paper);",
+		"table.groups .stick2 { left: 4.5rem;",
+		"table.groups th.stick { background: var(--band); }",
+		"table.groups .fit-detail { display: none; }",
+		"table.groups td.fit .print-only, div.fit-why { display: revert; }",
+	} {
+		if !strings.Contains(narrow, want) {
+			t.Errorf("the small-screen CSS lacks %q", want)
+		}
+	}
+	for _, no := range []string{"stick", "fit-why"} {
+		if strings.Contains(outside, no) {
+			t.Errorf("the CSS outside the small-screen block names %q: the wide and print layouts would change", no)
+		}
+	}
+	table := regexp.MustCompile(`(?s)<table class="groups">.*?</table>`).FindString(page)
+	if table == "" {
+		t.Fatal("no table of every group")
+	}
+	rows := strings.Count(table, "<tr><td") + strings.Count(table, `<tr class="bad"><td`)
+	labels := strings.Count(table, `<td class="stick">`)
+	chainages := strings.Count(table, `<td class="num stick stick2">`)
+	if rows != len(d.Groups) || labels != rows || chainages != rows {
+		t.Errorf("%d rows for %d groups, %d sticky group cells, %d sticky chainage cells; want one each per row", rows, len(d.Groups), labels, chainages)
+	}
+	if !strings.Contains(table, `<span class="fit-detail">poor or ambiguous, used with care: `+why+`</span>`) ||
+		!strings.Contains(table, `<span class="print-only">poor or ambiguous, used with care (why: below the table)</span>`) {
+		t.Error("the Fit cell does not give the long text (hidden on a phone) and the status with its pointer below the table")
+	}
+	below := regexp.MustCompile(`(?s)<div class="print-only fit-why"><h3>Why fits failed or are poor</h3>.*?</div>`).FindString(page[strings.Index(page, table)+len(table):])
+	if !strings.Contains(below, "<li>"+d.Groups[3].Key+": "+why+"</li>") {
+		t.Errorf("the list below the table, shown on a phone, does not give %s's explanation: %q", d.Groups[3].Key, below)
+	}
+}

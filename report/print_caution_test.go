@@ -76,7 +76,7 @@ func TestPrintedPagesCarryCaution(t *testing.T) {
 	if !strings.Contains(row[2], "before any excavation") {
 		t.Errorf("caution row reads %q", row[2])
 	}
-	if cols := strings.Count(head, "<th>") + strings.Count(head, `<th class="fit">`); row[1] != strconv.Itoa(cols) {
+	if cols := strings.Count(head, "<th>") + strings.Count(head, `<th class="fit">`) + strings.Count(head, `<th class="stick`); row[1] != strconv.Itoa(cols) {
 		t.Errorf("caution row spans %s columns, the table has %d", row[1], cols)
 	}
 	j := strings.Index(html, "Why fits failed or are poor")

@@ -66,6 +66,18 @@ code { font-size: .85em; word-break: break-all; }
   table.findings td { display: block; border: 0; padding: .1rem 0; }
   table.findings td.detail { order: 4; flex-basis: 100%; }
   table.findings td.where { order: 5; flex-basis: 100%; color: var(--muted); font-size: .85rem; }
+  /* The table of every group scrolls sideways (about 1150 px on the
+     demo): Group and Chainage stay at the left, so that the cover read
+     six columns on still has its place, and the Fit column gives the
+     status, its explanation below the table as on paper (a poor fit's
+     text, 3 words a line in a squeezed column, made a row 1000 px tall). */
+  table.groups .stick { position: sticky; left: 0; z-index: 1; background: var(--paper);
+    width: 4.5rem; min-width: 4.5rem; max-width: 4.5rem; overflow-wrap: anywhere; }
+  table.groups .stick2 { left: 4.5rem; width: auto; min-width: 0; max-width: none; overflow-wrap: normal; box-shadow: inset -1px 0 0 var(--rule); }
+  table.groups th.stick { background: var(--band); }
+  table.groups td.fit { min-width: 9rem; }
+  table.groups .fit-detail { display: none; }
+  table.groups td.fit .print-only, div.fit-why { display: revert; }
 }
 table.groups { font-size: .85rem; }
 table.groups th, table.groups td { padding: .25rem .35rem; }
@@ -177,13 +189,13 @@ footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rul
 <h2>Every group</h2>
 <div class="wide"><table class="groups">
 <thead><tr class="print-only"><th colspan="{{.GroupCols}}">{{.CautionShort}}</th></tr>
-<tr><th>Group</th><th>Chainage (m)</th>{{if .D.Conductors}}<th>Conductor</th>{{end}}<th>Current (A)</th>{{if eq .D.Signal.Mode "ac"}}<th>Phase (°)</th>{{end}}<th>{{.CoverHead}}</th>{{if .DepthCol}}<th>{{.DepthHead}}</th>{{end}}<th>{{if .D.Frame.Origin}}Lat, lon (°){{else}}E, N (m){{end}}</th><th>Azimuth (°)</th><th>RMS (nT)</th><th>Readings</th><th class="fit">Fit</th></tr></thead>
+<tr><th class="stick">Group</th><th class="stick stick2">Chainage (m)</th>{{if .D.Conductors}}<th>Conductor</th>{{end}}<th>Current (A)</th>{{if eq .D.Signal.Mode "ac"}}<th>Phase (°)</th>{{end}}<th>{{.CoverHead}}</th>{{if .DepthCol}}<th>{{.DepthHead}}</th>{{end}}<th>{{if .D.Frame.Origin}}Lat, lon (°){{else}}E, N (m){{end}}</th><th>Azimuth (°)</th><th>RMS (nT)</th><th>Readings</th><th class="fit">Fit</th></tr></thead>
 <tbody>
-{{$ac := eq .D.Signal.Mode "ac"}}{{$tracks := .D.Conductors}}{{$depthCol := .DepthCol}}{{range .Groups}}<tr{{if .Bad}} class="bad"{{end}}><td>{{.Key}}</td><td class="num">{{.Chainage}}</td>{{if $tracks}}<td class="num">{{range $i, $v := .Conductor}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{end}}<td class="num">{{range $i, $v := .Current}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{if $ac}}<td class="num">{{range $i, $v := .Phase}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{end}}<td class="num">{{range $i, $v := .Cover}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{if $depthCol}}<td class="num">{{range $i, $v := .Depth}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{end}}<td class="num">{{range $i, $v := .Position}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td><td class="num">{{range $i, $v := .Azimuth}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td><td class="num">{{.RMS}}</td><td class="num">{{.Points}}</td><td class="fit">{{if .StatusShort}}<span class="fit-detail">{{.Status}}</span><span class="print-only">{{.StatusShort}} (why: below the table)</span>{{else}}{{.Status}}{{end}}</td></tr>
+{{$ac := eq .D.Signal.Mode "ac"}}{{$tracks := .D.Conductors}}{{$depthCol := .DepthCol}}{{range .Groups}}<tr{{if .Bad}} class="bad"{{end}}><td class="stick">{{.Key}}</td><td class="num stick stick2">{{.Chainage}}</td>{{if $tracks}}<td class="num">{{range $i, $v := .Conductor}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{end}}<td class="num">{{range $i, $v := .Current}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{if $ac}}<td class="num">{{range $i, $v := .Phase}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{end}}<td class="num">{{range $i, $v := .Cover}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{if $depthCol}}<td class="num">{{range $i, $v := .Depth}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{end}}<td class="num">{{range $i, $v := .Position}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td><td class="num">{{range $i, $v := .Azimuth}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td><td class="num">{{.RMS}}</td><td class="num">{{.Points}}</td><td class="fit">{{if .StatusShort}}<span class="fit-detail">{{.Status}}</span><span class="print-only">{{.StatusShort}} (why: below the table)</span>{{else}}{{.Status}}{{end}}</td></tr>
 {{end}}</tbody>
 </table></div>
 <p class="values">One line per fitted conductor, strongest first. {{if .D.Frame.Origin}}Lat, lon{{else}}E, N{{end}}: where each conductor passes closest to the centre of its group's readings (for an object, where it lies; for a pair of lines not told apart, the pair's centre){{if .D.Frame.Origin}}, WGS84 latitude and longitude in decimal degrees, negative south and west (results.csv and results.json give the local east and north too){{else}}, local east and north in metres as on the plan view{{end}}.{{if .D.Conductors}} Conductor: 1 for the one the route follows, 2, 3, ... for the further conductors followed along it, – for a source in no track. Chainage is along the route (conductor 1); a further conductor's own chainage, measured along it from its first station as its findings give it, follows its number in brackets where it differs.{{end}}{{if .PlanShows.Failed}} A fit that failed gives no current, depth, cover or place: its numbers mean nothing there (the Fit column says why; results.json keeps them with the fit's problem).{{end}} Uncertainties are one standard deviation from the reading noise only; they do not count the error of the model, which is often many times larger{{with .Scatter}} (see the realistic spread in the summary){{end}}. {{if .DepthCol}}Cover is the depth below the ground; the depth below the sensors is measured {{else}}Cover is the depth {{end}}{{.DepthRef}}.{{if .CoverNA}} *Cover n/a: the sensors' height above the ground was not given, so the depth of cover below the ground cannot be computed: it is less than the depth below the sensors by their height above the ground (give it with --sensor-height, or the ground level with --reference-z).{{end}}</p>
-{{if .FitDetails}}<div class="print-only"><h3>Why fits failed or are poor</h3>
+{{if .FitDetails}}<div class="print-only fit-why"><h3>Why fits failed or are poor</h3>
 <ul class="values">
 {{range .FitDetails}}<li>{{index . 0}}: {{index . 1}}</li>
 {{end}}</ul></div>{{end}}
@@ -204,7 +216,8 @@ footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rul
 {{with .CoverSigma}}<dt>Cover uncertainty</dt><dd>{{.}}</dd>{{end}}
 <dt>Minimum cover</dt><dd>{{with .D.MinCover}}{{printf "%.2f" .Depth}} m{{with .Code}} ({{.}}){{else}} (no code named){{end}}{{else}}not given: no cover check (published codes differ by country){{end}}</dd>
 {{range .Settings}}<dt>{{index . 0}}</dt><dd>{{index . 1}}</dd>
-{{end}}</dl>
+{{end}}<dt>Tables for spreadsheets</dt><dd>{{.CSVText}}</dd>
+</dl>
 {{if .D.Inputs}}<h3>Input files</h3>
 <div class="wide"><table>
 <thead><tr><th>Role</th><th>File</th><th>Readings</th><th>SHA-256</th></tr></thead>

@@ -22,6 +22,7 @@ const demoLog = "fenwick-lane.csv"
 
 func init() {
 	var out string
+	var decimalComma bool
 	register(&command{
 		name:    "demo",
 		usage:   "[-o DIR]",
@@ -43,6 +44,7 @@ Examples:
   undercurrent demo -o /tmp/fenwick`,
 		setFlags: func(fs *pflag.FlagSet) {
 			fs.StringVarP(&out, "output", "o", filepath.Join("out", "demo"), "write the log and the results into `DIR`")
+			fs.BoolVar(&decimalComma, "csv-decimal-comma", false, "write results.csv and findings.csv with a semicolon between fields and a decimal comma (60,015), as locate --csv-decimal-comma does (the log is written as usual)")
 		},
 		run: func(ctx context.Context, fs *pflag.FlagSet, args []string, stdout, stderr io.Writer) error {
 			if len(args) != 0 {
@@ -51,14 +53,14 @@ Examples:
 			if out == "" {
 				return usageErrorf("-o needs a directory")
 			}
-			return runDemo(ctx, out, stdout, progressOn(stderr))
+			return runDemo(ctx, out, report.CSVOptions{DecimalComma: decimalComma}, stdout, progressOn(stderr))
 		},
 	})
 }
 
 // runDemo simulates the demo scenario into a staging directory, locates on
 // it, writes the results beside it, and moves the directory into place.
-func runDemo(ctx context.Context, out string, stdout, progress io.Writer) error {
+func runDemo(ctx context.Context, out string, csvOpt report.CSVOptions, stdout, progress io.Writer) error {
 	start := time.Now()
 	if err := checkOutDir(out, []string{demoLog}); err != nil {
 		return err
@@ -118,7 +120,7 @@ func runDemo(ctx context.Context, out string, stdout, progress io.Writer) error 
 		if err := ctx.Err(); err != nil {
 			return err
 		}
-		return writeDocFiles(tmp, doc)
+		return writeDocFiles(tmp, doc, csvOpt)
 	})
 	if err != nil {
 		return err
@@ -126,8 +128,12 @@ func runDemo(ctx context.Context, out string, stdout, progress io.Writer) error 
 	fmt.Fprintf(stdout, "simulated %s: %d readings on %d traverses (%s)\n", simulate.DemoPath, s.Len(), len(sc.Lines()), sc.Site)
 	printFindings(stdout, doc)
 	fmt.Fprintf(stdout, "done in %.1f s. Open the crew report: %s\n", time.Since(start).Seconds(), filepath.Join(out, "report.html"))
-	fmt.Fprintf(stdout, "the log and the other results are beside it; rerun the fit with:\n  undercurrent locate --freq 50 --window 0.1 --group-by group --sensor-height %g --ground-sigma 0.02 --min-cover 0.6 --cover-code %s %s -o %s\n",
-		sc.Sensor.Height, shellQuote(o.coverCode), shellQuote(filepath.Join(out, demoLog)), shellQuote(filepath.Clean(out)+"-rerun"))
+	csvFlag := ""
+	if csvOpt.DecimalComma {
+		csvFlag = " --csv-decimal-comma"
+	}
+	fmt.Fprintf(stdout, "the log and the other results are beside it; rerun the fit with:\n  undercurrent locate --freq 50 --window 0.1 --group-by group --sensor-height %g --ground-sigma 0.02 --min-cover 0.6 --cover-code %s%s %s -o %s\n",
+		sc.Sensor.Height, shellQuote(o.coverCode), csvFlag, shellQuote(filepath.Join(out, demoLog)), shellQuote(filepath.Clean(out)+"-rerun"))
 	return nil
 }
 

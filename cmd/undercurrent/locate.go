@@ -71,6 +71,9 @@ type locateOptions struct {
 	minStep         float64
 	title           string
 	workers         int
+	// csvDecimalComma is --csv-decimal-comma: results.csv and findings.csv
+	// with semicolons and decimal commas (report.CSVOptions).
+	csvDecimalComma bool
 	// coil holds the induction-coil options (coil.go).
 	coil coilFlags
 	// read holds the input flags shared by every command that reads logs.
@@ -126,6 +129,7 @@ func (o *locateOptions) setFlags(fs *pflag.FlagSet) {
 	fs.StringVar(&o.groupBy, "group-by", "", "fit each value of column `COL` separately (a traverse, a sensor, a time window) and build the along-route profile from the groups")
 	fs.BoolVar(&o.json, "json", false, "print the result document (JSON) on stdout")
 	fs.StringVarP(&o.out, "output", "o", "", "write results.json, results.csv, findings.csv, route.geojson and report.html into `DIR`")
+	fs.BoolVar(&o.csvDecimalComma, "csv-decimal-comma", false, "write results.csv and findings.csv with a semicolon between fields and a decimal comma (60,015), for a spreadsheet set to a language that writes decimals so (German, French, ...), which takes the usual 60.015 for 60015; text cells are as usual; needs -o")
 	fs.Float64Var(&o.minCover, "min-cover", 0, "report cover shallower than `M` metres (needs a ground reference: --sensor-height or --reference-z)")
 	fs.StringVar(&o.coverCode, "cover-code", "", "the code or practice the minimum cover comes from, quoted in the report (\"NEC Table 300.5\")")
 	fs.Float64Var(&o.referenceZ, "reference-z", 0, "report depths below the ground surface at up = `Z` metres, one flat level for the whole survey, instead of below the sensors' mean height; up is the log's local frame (on a latitude/longitude/height log, relative to the origin's height, by default the first reading's), so a ground height of G in the log's datum is Z = G minus the origin's height; warned when it lies above the sensors or does not fit a route whose sensors climb")
@@ -284,11 +288,16 @@ func (o *locateOptions) check(fs *pflag.FlagSet) error {
 		if err := checkOutDir(o.out, o.keepNames); err != nil {
 			return err
 		}
+	} else if o.csvDecimalComma {
+		return usageErrorf("--csv-decimal-comma says how results.csv and findings.csv are written: give -o DIR too")
 	}
 	o.given = map[string]string{}
 	if fs != nil {
 		fs.Visit(func(f *pflag.Flag) {
-			if f.Name != "json" && f.Name != "output" && f.Name != "workers" {
+			// The output flags change no result: results.json's settings
+			// leave them out (report.html's settings say how the CSV
+			// files are written).
+			if f.Name != "json" && f.Name != "output" && f.Name != "workers" && f.Name != "csv-decimal-comma" {
 				v := f.Value.String()
 				if sl, ok := f.Value.(pflag.SliceValue); ok {
 					// "bx=mV,by=mV", not the slice's "[bx=mV,by=mV]".
@@ -462,7 +471,7 @@ Examples:
 			}
 			if o.out != "" {
 				line := newStageLine(stderr, "writing "+o.out)
-				err := writeResults(ctx, o.out, doc, o.keepNames)
+				err := writeResults(ctx, o.out, doc, o.keepNames, o.csvOptions())
 				line.clear()
 				if err != nil {
 					return err
@@ -2884,14 +2893,20 @@ func stageDir(ctx context.Context, dir string, keep []string, fill func(tmp stri
 	return os.RemoveAll(old)
 }
 
-// writeDocFiles writes the result files into dir (resultFiles).
-func writeDocFiles(dir string, doc *report.Document) error {
-	return report.WriteFiles(dir, doc)
+// writeDocFiles writes the result files into dir (resultFiles), the CSV
+// files in the style opt says.
+func writeDocFiles(dir string, doc *report.Document, opt report.CSVOptions) error {
+	return report.WriteFilesWith(dir, doc, opt)
 }
 
 // writeResults writes the result directory of a locate run.
-func writeResults(ctx context.Context, dir string, doc *report.Document, keep []string) error {
-	return stageDir(ctx, dir, keep, func(tmp string) error { return writeDocFiles(tmp, doc) })
+func writeResults(ctx context.Context, dir string, doc *report.Document, keep []string, opt report.CSVOptions) error {
+	return stageDir(ctx, dir, keep, func(tmp string) error { return writeDocFiles(tmp, doc, opt) })
+}
+
+// csvOptions are the options of the CSV files the flags ask for.
+func (o *locateOptions) csvOptions() report.CSVOptions {
+	return report.CSVOptions{DecimalComma: o.csvDecimalComma}
 }
 
 // checkParentDir refuses an output path whose directory does not exist

@@ -11,6 +11,7 @@ import (
 
 	"undercurrent/ingest"
 	"undercurrent/inverse/simulate"
+	"undercurrent/report"
 )
 
 // simulatedLog writes the single-line scenario's log into dir and returns
@@ -284,7 +285,7 @@ func BenchmarkLocateRoute31Files(b *testing.B) {
 		if err != nil {
 			b.Fatal(err)
 		}
-		if err := writeResults(b.Context(), out, doc, nil); err != nil {
+		if err := writeResults(b.Context(), out, doc, nil, report.CSVOptions{}); err != nil {
 			b.Fatal(err)
 		}
 	}
