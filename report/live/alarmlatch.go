@@ -34,7 +34,7 @@ import (
 // implausible, inconsistent) and the currents' (over-current, imbalance)
 // as they were, and the first solved window clears the failures.
 var latchedKinds = map[string]bool{AlarmOverCurrent: true, AlarmImbalance: true, AlarmSilent: true, AlarmStuck: true, AlarmSaturated: true,
-	AlarmDegraded: true, AlarmImplausible: true, AlarmInconsistent: true}
+	AlarmDegraded: true, AlarmImplausible: true, AlarmInconsistent: true, AlarmShare: true}
 
 // WorsenFactor is how much a held condition must grow, over the value
 // last alarmed for it, to be raised again (Alarm.Worsened): a leak of
@@ -58,7 +58,7 @@ func worsened(kind string, failed bool, v, last float64) bool {
 		return false
 	}
 	switch kind {
-	case AlarmOverCurrent, AlarmImbalance:
+	case AlarmOverCurrent, AlarmImbalance, AlarmShare:
 		return math.Abs(v) >= WorsenFactor*math.Abs(last)
 	case AlarmDegraded, AlarmInconsistent:
 		return v >= WorsenFactor*WorsenFactor*last
@@ -71,7 +71,7 @@ func worsened(kind string, failed bool, v, last float64) bool {
 // was.
 func judgedByFit(kind string) bool {
 	switch kind {
-	case AlarmOverCurrent, AlarmImbalance, AlarmDegraded, AlarmImplausible, AlarmInconsistent:
+	case AlarmOverCurrent, AlarmImbalance, AlarmDegraded, AlarmImplausible, AlarmInconsistent, AlarmShare:
 		return true
 	}
 	return false
@@ -100,7 +100,13 @@ const clearAfter = 3
 // recorded its value (setLevel): a window that could not judge it (a
 // reduced chi-square not known, an Earth's field not seen) leaves it as
 // it was.
-func needsLevel(kind string) bool { return kind == AlarmDegraded || kind == AlarmImplausible }
+//
+// A share (AlarmShare) is judged only in a window whose denominator is
+// above its floor (shareAlarms): between trams, with the return current
+// near zero, a held share is neither continued nor cleared.
+func needsLevel(kind string) bool {
+	return kind == AlarmDegraded || kind == AlarmImplausible || kind == AlarmShare
+}
 
 // setLevel records the window's value of a latched kind for subject,
 // also when under its threshold (for the Cleared alarm's Value), and so
@@ -216,7 +222,7 @@ func (p *processor) latch(w *window, est *Estimate, alarms []Alarm) []Alarm {
 		switch {
 		case al.Kind == AlarmDegraded && !al.fitFailed || al.Kind == AlarmInconsistent:
 			al.Message += "; raised once while the condition lasts (the estimates list it as ongoing), again if its misfit grows to 1.5 times the one alarmed (the reduced chi-square to 2.25 times), and, marked cleared, when it ends"
-		case al.Kind == AlarmOverCurrent || al.Kind == AlarmImbalance:
+		case al.Kind == AlarmOverCurrent || al.Kind == AlarmImbalance || al.Kind == AlarmShare:
 			al.Message += "; raised once while the condition lasts (the estimates list it as ongoing), again if it grows to 1.5 times the value alarmed, and, marked cleared, when it ends"
 		default:
 			al.Message += "; raised once while the condition lasts (the estimates list it as ongoing) and, marked cleared, when it ends"
@@ -243,14 +249,28 @@ func (p *processor) latch(w *window, est *Estimate, alarms []Alarm) []Alarm {
 				continue // not judged in a window without currents or fit
 			}
 			if _, ok := p.level[k]; !ok && needsLevel(st.Kind) {
-				continue // not judged in this window
+				// Not judged in this window. A share is still listed as
+				// ongoing, with its last value and its count of judged
+				// windows: between trams (most windows at a quiet
+				// depot) the condition is held, not gone.
+				if st.Kind == AlarmShare && est != nil {
+					est.Ongoing = append(est.Ongoing, OngoingAlarm{Kind: st.Kind, Subject: st.Subject, Since: st.Since, Windows: st.Windows, Value: st.Value})
+				}
+				continue
 			}
-			if v, ok := p.level[k]; ok && (st.Kind == AlarmDegraded || st.Kind == AlarmInconsistent) {
+			if v, ok := p.level[k]; ok && (st.Kind == AlarmDegraded || st.Kind == AlarmInconsistent || st.Kind == AlarmShare) {
 				// Within the deadband, or under it for fewer than
 				// clearAfter windows: still held.
 				hold := true
-				if st.Kind == AlarmDegraded {
-					if v > st.Threshold/(WorsenFactor*WorsenFactor) {
+				var quiet bool
+				switch st.Kind {
+				case AlarmDegraded:
+					quiet = v <= st.Threshold/(WorsenFactor*WorsenFactor)
+				case AlarmShare:
+					quiet = p.shareQuiet[k] // under its deadband (shareAlarms)
+				}
+				if st.Kind == AlarmDegraded || st.Kind == AlarmShare {
+					if !quiet {
 						st.Quiet = 0
 					} else {
 						st.Quiet++
@@ -296,6 +316,7 @@ func (p *processor) latch(w *window, est *Estimate, alarms []Alarm) []Alarm {
 		out = append(out, al)
 	}
 	clear(p.level)
+	clear(p.shareQuiet)
 	return out
 }
 

@@ -54,6 +54,13 @@ noise = 0.5
 // alarms.
 func runWindows(t *testing.T, a *AssetConfig, currents [][2]float64) [][]Alarm {
 	t.Helper()
+	_, out := runEstimates(t, a, currents)
+	return out
+}
+
+// runEstimates is runWindows also returning each window's estimate.
+func runEstimates(t *testing.T, a *AssetConfig, currents [][2]float64) ([]*Estimate, [][]Alarm) {
+	t.Helper()
 	p, err := newProcessor(a, "test")
 	if err != nil {
 		t.Fatal(err)
@@ -65,6 +72,7 @@ func runWindows(t *testing.T, a *AssetConfig, currents [][2]float64) [][]Alarm {
 	p.est, p.names = est, []string{"cable", "pipe"}
 	rng := rand.New(rand.NewPCG(20, 11))
 	var out [][]Alarm
+	var es []*Estimate
 	for k, c := range currents {
 		w := synthWindow(a, []complex128{complex(c[0], 0), complex(c[1], 0)}, [3]float64{18000, 2000, -44000}, float64(k), 100, 100, 0.5, rng)
 		e, al := p.solve(w, p.reduce(w))
@@ -72,8 +80,9 @@ func runWindows(t *testing.T, a *AssetConfig, currents [][2]float64) [][]Alarm {
 			t.Fatalf("window %d: quality %s", k, e.Quality)
 		}
 		out = append(out, p.latch(w, e, al))
+		es = append(es, e)
 	}
-	return out
+	return es, out
 }
 
 // TestConductorOwnAlarmLimits: a conductor entry's own max_current and

@@ -232,11 +232,14 @@
 // "earth-field", or with noise given a chi-square far below its degrees
 // of freedom, subject "chi2"; the estimate's quality is then
 // "implausible"), inconsistent (a sensor the others contradict, left
-// out). Each is published on
+// out), share (a conductor's |I| over the asset's conductors' summed |I|,
+// or over share_of's, above its max_share by three sigmas; judged only
+// where the denominator is above share_floor: share.go). Each is
+// published on
 // uc.alarm.<asset>.<kind> with message id "<asset>/<window>/<kind>/<subject>".
 // All but step, data-lost and commissioning are conditions: raised once
 // at their onset, again when worse by WorsenFactor (over-current,
-// imbalance, degraded, inconsistent), and marked cleared when they end
+// imbalance, share, degraded, inconsistent), and marked cleared when they end
 // (alarmlatch.go).
 //
 // # Queries

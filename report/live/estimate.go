@@ -229,6 +229,14 @@ type Alarm struct {
 	// the message), one that does not is cleared, having perhaps ended in
 	// the gap.
 	AfterGap float64 `json:"after_gap_s,omitempty"`
+	// Sigma, ShareOf and ShareOfCurrent are a share alarm's (AlarmShare,
+	// not its cleared record): Value's standard deviation, what the share
+	// is taken of (the conductor share_of names, or the asset's
+	// conductors joined by "+" for the share of their sum) and that
+	// denominator, A.
+	Sigma          float64 `json:"sigma,omitempty"`
+	ShareOf        string  `json:"share_of,omitempty"`
+	ShareOfCurrent float64 `json:"share_of_a,omitempty"`
 	// fitFailed marks the degraded alarm of a window that could not be
 	// solved (not encoded: its message and threshold 0 tell it).
 	fitFailed bool
@@ -282,8 +290,11 @@ const (
 	// and cleared (Cleared, Peak the run's length) by the sensor's next
 	// batch accepted.
 	AlarmOutOfOrder = "out-of-order"
+	// AlarmShare: a conductor carries more than its max_share of the
+	// current (subject: the conductor; value: the share; see shareAlarms).
+	AlarmShare = "share"
 )
 
 // AlarmKinds lists every alarm kind the service raises; the alarms API
 // refuses any other kind.
-var AlarmKinds = []string{AlarmOverCurrent, AlarmImbalance, AlarmStep, AlarmSilent, AlarmStuck, AlarmSaturated, AlarmDegraded, AlarmImplausible, AlarmDataLost, AlarmInconsistent, AlarmCommissioning, AlarmClockJump, AlarmOutOfOrder}
+var AlarmKinds = []string{AlarmOverCurrent, AlarmImbalance, AlarmStep, AlarmSilent, AlarmStuck, AlarmSaturated, AlarmDegraded, AlarmImplausible, AlarmDataLost, AlarmInconsistent, AlarmCommissioning, AlarmClockJump, AlarmOutOfOrder, AlarmShare}

@@ -39,6 +39,9 @@ type processor struct {
 	// latch key, also when under their threshold (solve sets them, latch
 	// reads them for a Cleared alarm's Value and then empties them).
 	level map[string]float64
+	// shareQuiet marks, by latch key, the held shares that this window
+	// judged under their deadband (shareAlarms; cleared with level).
+	shareQuiet map[string]bool
 	// gapAfter, s, is the gap in the data after which a held condition
 	// that holds again is raised anew (latch; the service's silent_after,
 	// 0: never).
@@ -701,6 +704,7 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 		alarms = append(alarms, p.currentAlarms(w, i, name, c.Current, total, split, gap)...)
 	}
 	e.CurrentCovariance = currentCovariance(out.CurrentCov, scale, gCov, len(p.names))
+	alarms = append(alarms, p.shareAlarms(w, e)...)
 	prevAt := p.prevAt
 	p.prevAt = w.End
 	if len(a.Alarms.Balance) > 1 && a.Alarms.MaxImbalance > 0 {

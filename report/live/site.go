@@ -221,6 +221,17 @@ type ConductorConfig struct {
 	// file by name).
 	MaxCurrent *float64 `toml:"max_current" json:"-"`
 	Step       *float64 `toml:"step" json:"-"`
+	// MaxShare is the largest share of the current this conductor may
+	// carry (a fraction; 0 or absent: not judged): its |I| over the sum
+	// of every conductor's |I| in the asset, or over ShareOf's |I| when
+	// ShareOf names another conductor (a pipe's share of a return cable's
+	// current). It is judged only in windows whose denominator is above
+	// ShareFloor, A (absent: 0), and at least shareMinSigmas times its
+	// own sigma (shareAlarms). Read from the site file by name, as
+	// MaxCurrent is.
+	MaxShare   *float64 `toml:"max_share" json:"-"`
+	ShareOf    string   `toml:"share_of" json:"-"`
+	ShareFloor *float64 `toml:"share_floor" json:"-"`
 
 	// pointSet and dirSet say whether the site file gave point and
 	// direction (model "commission", where both are optional: see
@@ -265,6 +276,45 @@ func (a *AssetConfig) conductorLimit(name, key string) (v float64, own bool) {
 		return a.Alarms.MaxCurrent, false
 	}
 	return a.Alarms.Step, false
+}
+
+// validateShare checks conductor i's max_share, share_of and
+// share_floor (the names share_of gives are checked once all are known).
+func (a *AssetConfig) validateShare(i int) error {
+	c := &a.Conductors[i]
+	bad := func(key, format string, args ...any) error {
+		return &keyError{header: "[[asset.conductor]]", index: i, key: key,
+			err: fmt.Errorf("conductor %q: "+format, append([]any{c.Name}, args...)...)}
+	}
+	if c.MaxShare != nil {
+		v := *c.MaxShare
+		if v < 0 || math.IsNaN(v) || math.IsInf(v, 0) {
+			return bad("max_share", "max_share %v: want a fraction, 0 or more (0.1: a tenth of the current; 0 turns the alarm off)", v)
+		}
+		if v >= 1 && c.ShareOf == "" {
+			return bad("max_share", "max_share %v: a share of the asset's conductors' current together is at most 1; want a fraction under 1 (or share_of naming the conductor to compare with)", v)
+		}
+		if c.ShareOf == "" && len(a.Conductors) < 2 {
+			return bad("max_share", "max_share: the asset lists one conductor, whose share of the current is always 1; list the others or give share_of")
+		}
+	}
+	if c.ShareOf != "" {
+		if c.MaxShare == nil {
+			return bad("share_of", "share_of %q without max_share: give max_share, the share that raises the alarm", c.ShareOf)
+		}
+		if c.ShareOf == c.Name {
+			return bad("share_of", "share_of names the conductor itself; name another conductor, or leave share_of out for the share of all the asset's conductors")
+		}
+	}
+	if c.ShareFloor != nil {
+		if v := *c.ShareFloor; v < 0 || math.IsNaN(v) || math.IsInf(v, 0) {
+			return bad("share_floor", "share_floor %v: want a current in A, 0 or more", v)
+		}
+		if c.MaxShare == nil {
+			return bad("share_floor", "share_floor without max_share: give max_share, the share that raises the alarm")
+		}
+	}
+	return nil
 }
 
 // AlarmConfig is the [asset.alarms] table; a zero threshold disables its alarm.
@@ -655,6 +705,9 @@ func (a *AssetConfig) validate(dir string) error {
 					err: fmt.Errorf("conductor %q: %s %v: want a threshold in A, 0 or more (0 turns the alarm off for this conductor)", c.Name, l.key, *l.v)}
 			}
 		}
+		if err := a.validateShare(i); err != nil {
+			return err
+		}
 		if a.Model == "commission" {
 			// The geometry is fitted; the entry names the conductor and
 			// may say roughly where it runs (point: to match the fitted
@@ -684,6 +737,14 @@ func (a *AssetConfig) validate(dir string) error {
 			}
 		default:
 			return fmt.Errorf("conductor %q: kind %q: want \"line\" or \"segment\"", c.Name, c.Kind)
+		}
+	}
+	for i := range a.Conductors {
+		// share_of is checked once every conductor's name is known.
+		c := &a.Conductors[i]
+		if c.ShareOf != "" && !cnames[c.ShareOf] {
+			return &keyError{header: "[[asset.conductor]]", index: i, key: "share_of",
+				err: fmt.Errorf("conductor %q: share_of names conductor %q, which is not listed in this asset", c.Name, c.ShareOf)}
 		}
 	}
 	for _, n := range a.Alarms.Balance {
