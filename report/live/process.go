@@ -116,8 +116,10 @@ type reduced struct {
 	// averages out).
 	totals []float64
 	// counts are the used sensors' sample counts, and scatter the
-	// one-sigma of their DC window means from their samples' own scatter
-	// (sampleScatter; nil for AC), in the order of used.
+	// one-sigma of their readings from their samples' own scatter, in the
+	// order of used: of a DC window's means (sampleScatter), of each
+	// quadrature of an AC window's phasors (acPhasors' scatter about the
+	// fit, times its noise gain over sqrt n; 0 when too few samples).
 	counts  []int
 	scatter []float64
 	// spikes counts, per sensor, the readings left out of a DC window's
@@ -323,12 +325,15 @@ func (p *processor) reduce(w *window) *reduced {
 		if a.Mode == "ac" {
 			// The fundamental with the harmonics the readings allow
 			// (acPhasors), so that a harmonic does not leak into it.
-			ph, harm, g, err := acPhasors(d.t, [3][]float64{d.bx, d.by, d.bz}, r.freq, acFitHarmonics(d.t, r.freq), r.ref)
+			ph, harm, g, sc, err := acPhasors(d.t, [3][]float64{d.bx, d.by, d.bz}, r.freq, acFitHarmonics(d.t, r.freq), r.ref)
 			if err != nil {
 				r.missing[s.Name] = err.Error()
 				continue
 			}
 			gains = append(gains, g)
+			// Each quadrature's noise from the readings' own scatter
+			// about the fit, as the stated noise's below.
+			r.scatter = append(r.scatter, sc*g/math.Sqrt(float64(len(d.t))))
 			r.ac = append(r.ac, d)
 			enu := func(ph [3]complex128) [3]complex128 {
 				var e [3]complex128
