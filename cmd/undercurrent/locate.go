@@ -32,39 +32,45 @@ import (
 
 // locateOptions are the settings of one locate run, from flags.
 type locateOptions struct {
-	calibration  string
-	base         string   // the base log, or the base logs joined by " + " for messages
-	bases        []string // the base logs given (--base, once or more)
-	baseHold     float64
-	baseHoldSet  bool // --base-hold given (0 then means no hold at all)
-	baseUnits    []string
-	baseColumns  []string
-	baseFrame    string // --base-frame: enu or ned ("" the file's own)
-	freq         float64
-	window       float64
-	mainsText    string
-	dcMainsText  string
-	dcMains      float64 // --dc-mains 50 or 60; 0: auto or off (dcMainsAuto)
-	dcMainsAuto  bool
-	mains        []float64 // mains frequencies fitted as nuisance beside another --freq
-	count        string
-	groupBy      string
-	json         bool
-	out          string
-	minCover     float64
-	coverCode    string
-	referenceZ   float64
-	hasRefZ      bool
-	sensorHeight float64
-	groundSigma  float64
-	noise        float64
-	rangeNT      float64 // --range-nt: the magnetometer's range, nT (clipped.go); 0 none given
-	robust       bool
-	despike      bool
-	stepK        float64
-	minStep      float64
-	title        string
-	workers      int
+	calibration string
+	base        string   // the base log, or the base logs joined by " + " for messages
+	bases       []string // the base logs given (--base, once or more)
+	baseHold    float64
+	baseHoldSet bool // --base-hold given (0 then means no hold at all)
+	baseUnits   []string
+	baseColumns []string
+	baseFrame   string // --base-frame: enu or ned ("" the file's own)
+	freq        float64
+	window      float64
+	mainsText   string
+	dcMainsText string
+	dcMains     float64 // --dc-mains 50 or 60; 0: auto or off (dcMainsAuto)
+	dcMainsAuto bool
+	// --interrupted: interruptedText as given; intOn and intOff the
+	// cycle's on and off times, s, or intAuto for a cycle found in the
+	// readings; all zero when not given (dcinterrupt.go).
+	interruptedText string
+	intOn, intOff   float64
+	intAuto         bool
+	mains           []float64 // mains frequencies fitted as nuisance beside another --freq
+	count           string
+	groupBy         string
+	json            bool
+	out             string
+	minCover        float64
+	coverCode       string
+	referenceZ      float64
+	hasRefZ         bool
+	sensorHeight    float64
+	groundSigma     float64
+	noise           float64
+	rangeNT         float64 // --range-nt: the magnetometer's range, nT (clipped.go); 0 none given
+	robust          bool
+	despike         bool
+	stepK           float64
+	minStep         float64
+	title           string
+	workers         int
 	// coil holds the induction-coil options (coil.go).
 	coil coilFlags
 	// read holds the input flags shared by every command that reads logs.
@@ -113,6 +119,7 @@ func (o *locateOptions) setFlags(fs *pflag.FlagSet) {
 	fs.Float64Var(&o.freq, "freq", 0, "demodulate the AC field at `HZ` (50, 60, 16.7, 512...) and fit RMS currents with phase; the field's own frequency is then estimated from the log, and if it is off (a grid at 50.1 Hz) the log is demodulated at the estimate, with a warning saying so (too far off, it refuses and names the frequency found); without --freq the DC field is fitted (no frequency is estimated and AC is not looked for)")
 	fs.StringVar(&o.mainsText, "mains", "50,60", "with --freq at another frequency than the mains (an injected tracer, 16.7 Hz), fit the mains `HZ` (50, 60, both as 50,60, or none) and their odd harmonics alongside in every window, so that a strong mains field changing as the sensor walks does not leak into the signal as noise")
 	fs.Float64Var(&o.window, "window", 0, "AC demodulation window, `S` seconds (default: ten cycles at 50 or 60 Hz; at any other frequency ten cycles or 0.1 s, whichever is longer, rounded up to a multiple of 0.1 s, so that the window holds whole cycles of the 50 or 60 Hz mains and they do not leak in)")
+	fs.StringVar(&o.interruptedText, "interrupted", "", "for a DC run whose current was switched off and on again on a fixed cycle while surveying (a rectifier interrupted), fit only the readings taken while it was on, leaving out those near each switch: give the cycle as `ON,OFF` seconds (its period and phase are then found from the readings' switches), or auto to take the whole cycle from the readings; without it a log with such switches is warned of and its fits are not called sound")
 	fs.StringVar(&o.dcMainsText, "dc-mains", "auto", "for a DC run (no --freq), average the readings over whole cycles of the mains at `HZ` (50 or 60) before the fits, so that a live mains cable's field, alternating too fast for the walk, cancels with its harmonics: the log needs several readings per cycle (100 Hz or more at 50 Hz); auto does it when the readings' strongest alternating field is at 50 or 60 Hz or a harmonic of them (a rectifier's ripple on the direct current: 100, 120, 300 Hz), off never")
 	o.coil.add(fs)
 	fs.StringVar(&o.count, "count", "auto", "number of line conductors per fit, `N` (1-4) or auto")
@@ -182,6 +189,12 @@ func (o *locateOptions) check(fs *pflag.FlagSet) error {
 	o.mains = mains
 	if o.dcMains, o.dcMainsAuto, err = parseDCMains(o.dcMainsText); err != nil {
 		return err
+	}
+	if o.intOn, o.intOff, o.intAuto, err = parseInterrupted(o.interruptedText); err != nil {
+		return err
+	}
+	if o.interruptedText != "" && o.freq != 0 {
+		return usageErrorf("--interrupted is for a DC run: an interrupted direct current is not located with --freq")
 	}
 	if fs != nil && fs.Changed("dc-mains") && o.freq != 0 {
 		return usageErrorf("--dc-mains is for a DC run: with --freq the window's whole cycles keep the mains out (--mains fits them beside a tracer)")
@@ -662,6 +675,11 @@ type survey struct {
 	// phasors' noise per axis from the windows' own sine-fit residuals
 	// (calibrate.Window.Sigma), nT.
 	windowN, windowSigma []float64
+	// interrupted holds the DC logs whose readings switch between two
+	// levels on a cycle, fitted as they are (dcinterrupt.go); intNotes
+	// say which logs' on-state readings alone were fitted.
+	interrupted map[string]bool
+	intNotes    []string
 	// baseGaps are the gaps of the base record that survey readings fell
 	// in (basegaps.go).
 	baseGaps []baseGapUse
@@ -1076,6 +1094,24 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			return nil, err
 		}
 		doc.Inputs = append(doc.Inputs, fileInput("survey", path, s.Len()))
+		if !sv.ac && !o.coil.on() {
+			// A current interrupted on and off (dcinterrupt.go).
+			var w, note string
+			var err error
+			if s, w, note, err = interruptedReadings(o, path, s); err != nil {
+				return nil, err
+			}
+			if w != "" {
+				sv.alerts = append(sv.alerts, w)
+				if sv.interrupted == nil {
+					sv.interrupted = map[string]bool{}
+				}
+				sv.interrupted[path] = true
+			}
+			if note != "" {
+				sv.intNotes = append(sv.intNotes, note)
+			}
+		}
 		if !sv.ac {
 			// An AC log located without --freq (dcalternating.go), and
 			// the mains averaged out over whole cycles (dcmains.go).
@@ -2200,6 +2236,8 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 	routeStartNote(doc)
 	// Groups whose readings fell in a gap of the base record.
 	baseGapsDocument(doc, sv)
+	// Groups of a log with an interrupted current fitted as it is.
+	interruptedDocument(doc, sv)
 	// Build puts a misfit every group shares first; an alert that names a
 	// cause (spikes left in, a route fitted as one line) still leads.
 	doc.Warnings = alertsFirst(doc.Warnings, alerts)

@@ -314,16 +314,19 @@ func (p *processor) currentAlarms(w *window, i int, name string, cur, total floa
 		peak, what = total, fmt.Sprintf(" RMS with its harmonics (the fundamental %.4g A)", cur)
 	}
 	p.setLevel(AlarmOverCurrent, name, peak)
-	if t := a.Alarms.MaxCurrent; t > 0 && math.Abs(peak) > t {
-		out = append(out, p.alarm(w, AlarmOverCurrent, name, peak, t,
-			fmt.Sprintf("conductor %s carries %.4g A%s, above %.4g A", name, peak, what, t)))
+	if t, own := a.conductorLimit(name, "max_current"); t > 0 && math.Abs(peak) > t {
+		msg := fmt.Sprintf("conductor %s carries %.4g A%s, above %.4g A", name, peak, what, t)
+		if own {
+			msg += fmt.Sprintf(" (its own max_current; the asset's is %.4g A)", a.Alarms.MaxCurrent)
+		}
+		out = append(out, p.alarm(w, AlarmOverCurrent, name, peak, t, msg))
 	}
 	prev, ok := p.prev[name]
 	end, okEnd := p.prevEnd[name]
 	if !okEnd {
 		end = prev
 	}
-	if a.Alarms.Step > 0 {
+	if limit, own := a.conductorLimit(name, "step"); limit > 0 {
 		var step float64
 		var msg string
 		within := false // the change is within this window
@@ -352,8 +355,11 @@ func (p *processor) currentAlarms(w *window, i int, name string, cur, total floa
 			// gradually in between (a load ramp through an outage).
 			msg += fmt.Sprintf(", which ended %.4g s before this window began (no estimate in between): a change across a gap, which may have come gradually during it, not necessarily a step", gap)
 		}
-		if msg != "" && math.Abs(step) > a.Alarms.Step {
-			out = append(out, p.alarm(w, AlarmStep, name, step, a.Alarms.Step, msg))
+		if msg != "" && math.Abs(step) > limit {
+			if own {
+				msg += fmt.Sprintf(" (above its own step limit, %.4g A)", limit)
+			}
+			out = append(out, p.alarm(w, AlarmStep, name, step, limit, msg))
 		}
 	}
 	p.prev[name] = cur

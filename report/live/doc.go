@@ -211,12 +211,14 @@
 //
 // # Alarms
 //
-// over-current (|I| above max_current), imbalance (|sum of the balance
+// over-current (|I| above max_current: the conductor entry's own where it
+// gives one, else [asset.alarms]'), imbalance (|sum of the balance
 // conductors' current phasors| above max_imbalance, each taken along the
 // first balance conductor's direction: go and return should
 // cancel; a difference is current leaking to earth), step (change between
 // consecutive windows, or within a window that holds a change, DC or
-// AC, above step), silent (no samples from a sensor in a
+// AC, above step, the conductor's own or the asset's; 0 turns it off),
+// silent (no samples from a sensor in a
 // window; with no subject, no data from any sensor for silent_after of
 // wall time, once per silence: dated from the broker's time of the last
 // stored batch, and kept in the checkpoint for a successor), stuck (one value

@@ -17,6 +17,17 @@ type Estimate struct {
 	Frequency      float64             `json:"frequency,omitempty"`
 	FrequencySigma float64             `json:"frequency_sigma_hz,omitempty"`
 	Conductors     []ConductorEstimate `json:"conductors"`
+	// CurrentCovariance is the covariance of the conductors' currents,
+	// A^2, a matrix in the order of Conductors: its diagonal is each
+	// current_sigma_a squared, and an element off it says how two
+	// currents' errors go together (conductors close together trade
+	// current in the fit). With it a ratio or sum of currents gets its
+	// sigma: for r = I_a / I_b, sigma_r^2 = r^2 (C_aa/I_a^2 + C_bb/I_b^2
+	// - 2 C_ab/(I_a I_b)). It holds the window's noise (widened by
+	// SigmaScale on a degraded window) and a commissioned geometry's
+	// share; for AC it is the RMS currents' (the fundamental's). Absent
+	// on a failed window.
+	CurrentCovariance [][]float64 `json:"current_covariance_a2,omitempty"`
 	// Background is the uniform field fitted with the currents (DC), nT ENU.
 	Background *[3]float64 `json:"background_nt,omitempty"`
 	// RMS is the root-mean-square residual, nT; Chi2 and DOF describe the

@@ -56,10 +56,15 @@ func (in *SolveInput) without(k int) SolveInput {
 
 type SolveOutput struct {
 	Current, CurrentSigma []float64 // A
-	Phase, PhaseSigma     []float64 // degrees (AC), nil for DC
-	Background            *[3]float64
-	RMS, Chi2             float64
-	DOF                   int
+	// CurrentCov is the covariance of Current, A^2, in conductor order
+	// (its diagonal CurrentSigma squared); nil when the estimator does
+	// not give it. For AC it is the RMS magnitudes' (see
+	// magnitudeCovariance).
+	CurrentCov        [][]float64
+	Phase, PhaseSigma []float64 // degrees (AC), nil for DC
+	Background        *[3]float64
+	RMS, Chi2         float64
+	DOF               int
 }
 
 // Commissioner fits the conductor geometry from commissioning data (the

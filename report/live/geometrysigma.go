@@ -329,29 +329,42 @@ func geometryShifts(newEst NewEstimatorFunc, mode string, conds []ConductorConfi
 // geometrySigmas returns, for the window's readings in, each conductor's
 // current sigma (A) and, for AC, phase sigma (degrees) from the error of
 // the held geometry: sqrt(sum over the principal axes of the squared
-// change of the current over one sigma along the axis). It returns nil
-// when no shifts are set or a shifted solve fails.
-func (p *processor) geometrySigmas(in *SolveInput, n int) (cur, phase []float64) {
+// change of the current over one sigma along the axis); and the
+// currents' covariance from it, A^2 (the sum over the axes of the
+// products of two conductors' changes: one axis moves every current at
+// once). It returns nils when no shifts are set or a shifted solve
+// fails.
+func (p *processor) geometrySigmas(in *SolveInput, n int) (cur, phase []float64, cov [][]float64) {
 	if len(p.shifts) == 0 {
-		return nil, nil
+		return nil, nil, nil
 	}
 	cur = make([]float64, n)
+	cov = make([][]float64, n)
+	for i := range cov {
+		cov[i] = make([]float64, n)
+	}
+	d := make([]float64, n)
 	for _, s := range p.shifts {
 		a, err := s.plus.Solve(in)
 		if err != nil || len(a.Current) != n {
-			return nil, nil
+			return nil, nil, nil
 		}
 		b, err := s.minus.Solve(in)
 		if err != nil || len(b.Current) != n {
-			return nil, nil
+			return nil, nil, nil
 		}
 		ac := len(a.Phase) == n && len(b.Phase) == n
 		if ac && phase == nil {
 			phase = make([]float64, n)
 		}
 		for i := range n {
-			d := s.f * (a.Current[i] - b.Current[i])
-			cur[i] += d * d
+			d[i] = s.f * (a.Current[i] - b.Current[i])
+		}
+		for i := range n {
+			cur[i] += d[i] * d[i]
+			for j := range n {
+				cov[i][j] += d[i] * d[j]
+			}
 			if ac {
 				dp := math.Remainder(a.Phase[i]-b.Phase[i], 360) * s.f
 				phase[i] += dp * dp
@@ -364,5 +377,5 @@ func (p *processor) geometrySigmas(in *SolveInput, n int) (cur, phase []float64)
 			phase[i] = math.Sqrt(phase[i])
 		}
 	}
-	return cur, phase
+	return cur, phase, cov
 }

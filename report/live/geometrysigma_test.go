@@ -253,7 +253,12 @@ func testGeometrySigma(t *testing.T, text string, cores []core) {
 			}
 			last = e
 		}
-		for _, c := range last.Conductors {
+		for i, c := range last.Conductors {
+			// The currents' covariance holds the geometry's share too:
+			// its diagonal is the sigma with it, squared.
+			if len(last.CurrentCovariance) != len(last.Conductors) || math.Abs(last.CurrentCovariance[i][i]/(c.CurrentSigma*c.CurrentSigma)-1) > 1e-9 {
+				t.Fatalf("seed %d %s: current_covariance_a2 %v, current_sigma_a %g", seed, c.Name, last.CurrentCovariance, c.CurrentSigma)
+			}
 			if !(c.CurrentSigmaGeometry > 0) || ac && (c.PhaseSigmaGeometry == nil || !(*c.PhaseSigmaGeometry > 0)) {
 				t.Fatalf("seed %d %s: no geometry sigma (%g A)", seed, c.Name, c.CurrentSigmaGeometry)
 			}

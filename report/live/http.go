@@ -471,7 +471,8 @@ func (s *Service) history(w http.ResponseWriter, r *http.Request) {
 // degraded window's sigma scale and the data lost before a window, then
 // a change within the window, the sensors left out or short, the spikes,
 // the implausible reasons and the AC frequency, then an AC conductor's
-// total RMS current and harmonics) come after the earlier
+// total RMS current and harmonics, then the row's conductor's
+// covariances with the others) come after the earlier
 // ones so that those keep their places.
 func writeEstimatesCSV(w http.ResponseWriter, ests []Estimate) {
 	w.Header().Set("Content-Type", "text/csv")
@@ -480,7 +481,7 @@ func writeEstimatesCSV(w http.ResponseWriter, ests []Estimate) {
 		"current_sigma_geometry_a", "phase_sigma_geometry_deg", "sigma_scale", "data_lost",
 		"change_at", "change_sigmas", "current_before_a", "current_before_sigma_a", "current_after_a", "current_after_sigma_a", "phase_before_deg", "phase_after_deg",
 		"missing", "spikes", "implausible", "frequency_hz", "frequency_sigma_hz",
-		"current_total_a", "current_total_sigma_a", "harmonics"})
+		"current_total_a", "current_total_sigma_a", "harmonics", "current_covariance_a2"})
 	f := func(v float64) string { return strconv.FormatFloat(v, 'g', 10, 64) }
 	// Times (seconds on the sensors' clock, Unix seconds for most) in
 	// full: ten significant digits would cut a change inside a window to
@@ -533,7 +534,7 @@ func writeEstimatesCSV(w http.ResponseWriter, ests []Estimate) {
 			}
 			return out
 		}
-		for _, c := range e.Conductors {
+		for ci, c := range e.Conductors {
 			ph, phs := "", ""
 			if c.Phase != nil {
 				ph, phs = f(*c.Phase), f(*c.PhaseSigma)
@@ -557,12 +558,21 @@ func writeEstimatesCSV(w http.ResponseWriter, ests []Estimate) {
 			for _, h := range c.Harmonics {
 				hs = append(hs, fmt.Sprintf("%d: %s ± %s", h.Order, f(h.Current), f(h.CurrentSigma)))
 			}
-			row = append(row, tot, tots, strings.Join(hs, "; "))
+			// The row's conductor's row of the currents' covariance:
+			// "conductor: covariance" with each conductor in order, its
+			// own (its variance) among them.
+			var cv []string
+			if ci < len(e.CurrentCovariance) && len(e.CurrentCovariance[ci]) == len(e.Conductors) {
+				for k, o := range e.Conductors {
+					cv = append(cv, o.Name+": "+f(e.CurrentCovariance[ci][k]))
+				}
+			}
+			row = append(row, tot, tots, strings.Join(hs, "; "), strings.Join(cv, "; "))
 			cw.Write(row)
 		}
 		if len(e.Conductors) == 0 {
 			row := []string{e.Asset, strconv.FormatInt(e.Window, 10), ft(e.Start), ft(e.End), "", "", "", "", "", f(e.RMS), f(e.Chi2), strconv.Itoa(e.DOF), e.Quality, strconv.Itoa(e.Sensors), strconv.Itoa(e.Revision), "", "", scale, e.DataLost}
-			row = append(append(append(row, change("")...), tail...), "", "", "")
+			row = append(append(append(row, change("")...), tail...), "", "", "", "")
 			cw.Write(row)
 		}
 	}

@@ -61,6 +61,9 @@ func (e *inverseEstimator) Solve(in *SolveInput) (*SolveOutput, error) {
 	out := &SolveOutput{RMS: res.RMS, Chi2: res.Chi2, DOF: res.DOF}
 	n := len(e.sources)
 	out.CurrentSigma = append([]float64(nil), res.StrengthSigmas[:n]...)
+	if res.Covariance != nil {
+		out.CurrentCov = strengthCovariance(res.Covariance, n)
+	}
 	if in.Phasors != nil {
 		for i := range n {
 			z := res.StrengthPhasors[i]
@@ -72,6 +75,9 @@ func (e *inverseEstimator) Solve(in *SolveInput) (*SolveOutput, error) {
 				ps = math.Min(180, res.StrengthSigmas[i]/mag*180/math.Pi)
 			}
 			out.PhaseSigma = append(out.PhaseSigma, ps)
+		}
+		if out.CurrentCov != nil {
+			out.CurrentCov = magnitudeCovariance(out.CurrentCov, out.Phase)
 		}
 	} else {
 		out.Current = append([]float64(nil), res.Strengths[:n]...)
@@ -155,7 +161,41 @@ func (e *inverseEstimator) solveWeighted(in *SolveInput) (*SolveOutput, error) {
 		bg := [3]float64{coef.At(ns, 0), coef.At(ns+1, 0), coef.At(ns+2, 0)}
 		out.Background = &bg
 	}
+	out.CurrentCov = strengthCovariance(&cov, ns)
+	if ac {
+		out.CurrentCov = magnitudeCovariance(out.CurrentCov, out.Phase)
+	}
 	return out, nil
+}
+
+// strengthCovariance returns the leading n by n block of a fit's
+// covariance (the strengths', before the background's), A^2.
+func strengthCovariance(cov *mat.SymDense, n int) [][]float64 {
+	out := make([][]float64, n)
+	for i := range out {
+		out[i] = make([]float64, n)
+		for j := range n {
+			out[i][j] = cov.At(i, j)
+		}
+	}
+	return out
+}
+
+// magnitudeCovariance turns the covariance c of AC strength phasors'
+// real parts (which their imaginary parts share, uncorrelated with them:
+// one design matrix for both) into that of their magnitudes, to first
+// order: d|z_i| = (x_i dx_i + y_i dy_i) / |z_i|, so
+// cov(|z_i|, |z_j|) = c_ij cos(phase_i - phase_j), phases in degrees.
+// Its diagonal is c_ii, the magnitude's variance that CurrentSigma gives.
+func magnitudeCovariance(c [][]float64, phase []float64) [][]float64 {
+	for i := range c {
+		for j := range c[i] {
+			if i != j {
+				c[i][j] *= math.Cos((phase[i] - phase[j]) * math.Pi / 180)
+			}
+		}
+	}
+	return c
 }
 
 // weightedSystem is the design matrix A (the conductors' fields from

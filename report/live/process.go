@@ -644,7 +644,7 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 		prevEnd[k] = v
 	}
 	// The held geometry's error, in quadrature with the window's noise.
-	gCur, gPhase := p.geometrySigmas(&r.in, len(p.names))
+	gCur, gPhase, gCov := p.geometrySigmas(&r.in, len(p.names))
 	var split *windowSplit
 	if a.Mode == "ac" {
 		split = p.windowChangeAC(r)
@@ -705,6 +705,7 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 		}
 		alarms = append(alarms, p.currentAlarms(w, i, name, c.Current, total, split, gap)...)
 	}
+	e.CurrentCovariance = currentCovariance(out.CurrentCov, scale, gCov, len(p.names))
 	prevAt := p.prevAt
 	p.prevAt = w.End
 	if len(a.Alarms.Balance) > 1 && a.Alarms.MaxImbalance > 0 {
@@ -747,6 +748,31 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 	return e, alarms
 }
 
+// currentCovariance is the estimate's covariance of the n conductors'
+// currents, A^2 (Estimate.CurrentCovariance): the solve's (noise, c),
+// widened by scale as the sigmas are, plus the held geometry's share g
+// (nil: none). Its diagonal is the conductors' current_sigma_a squared.
+// nil when the estimator gives no covariance.
+func currentCovariance(c [][]float64, scale float64, g [][]float64, n int) [][]float64 {
+	if len(c) != n {
+		return nil
+	}
+	out := make([][]float64, n)
+	for i := range n {
+		if len(c[i]) != n {
+			return nil
+		}
+		out[i] = make([]float64, n)
+		for j := range n {
+			out[i][j] = c[i][j] * scale * scale
+			if len(g) == n {
+				out[i][j] += g[i][j]
+			}
+		}
+	}
+	return out
+}
+
 // failed makes e a failed estimate, without currents or fit results, with
 // the reduction's alarms (silent and stuck sensors) and a degraded
 // alarm saying msg.
@@ -754,7 +780,7 @@ func (p *processor) failed(w *window, e *Estimate, alarms []Alarm, msg string) (
 	e.Quality = "failed"
 	e.Conductors = []ConductorEstimate{}
 	e.RMS, e.Chi2, e.DOF, e.Background, e.SigmaScale, e.Implausible = 0, 0, 0, nil, 0, nil
-	e.Chi2Geometry, e.Change = 0, nil
+	e.Chi2Geometry, e.Change, e.CurrentCovariance = 0, nil, nil
 	out := append([]Alarm(nil), alarms...)
 	al := p.alarm(w, AlarmDegraded, "", 0, 0, msg)
 	al.fitFailed = true
@@ -806,6 +832,13 @@ func nonFiniteEstimate(e *Estimate, alarms []Alarm) string {
 	for _, c := range e.Conductors {
 		if bad(c.Current) || bad(c.CurrentSigma) || bad(c.CurrentSigmaGeometry) || badp(c.Phase) || badp(c.PhaseSigma) || badp(c.PhaseSigmaGeometry) {
 			return "current of conductor " + c.Name
+		}
+	}
+	for _, row := range e.CurrentCovariance {
+		for _, v := range row {
+			if bad(v) {
+				return "current covariance"
+			}
 		}
 	}
 	for _, a := range alarms {

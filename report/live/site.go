@@ -212,6 +212,15 @@ type ConductorConfig struct {
 	Direction [3]float64 `toml:"direction"`
 	From      [3]float64 `toml:"from"`
 	To        [3]float64 `toml:"to"`
+	// MaxCurrent and Step, when given, replace [asset.alarms] max_current
+	// and step for this conductor alone, A (0 turns its alarm off, as it
+	// does in [asset.alarms]); absent (nil), the asset's apply. A return
+	// cable carrying hundreds of amperes beside a pipe carrying tens gets
+	// a limit of its own. Not part of a commissioned geometry (the
+	// geometry holds the fitted lines; the limits are read from the site
+	// file by name).
+	MaxCurrent *float64 `toml:"max_current" json:"-"`
+	Step       *float64 `toml:"step" json:"-"`
 
 	// pointSet and dirSet say whether the site file gave point and
 	// direction (model "commission", where both are optional: see
@@ -234,15 +243,41 @@ func (c *ConductorConfig) currentDir() [3]float64 {
 	return c.Direction
 }
 
+// conductorLimit is a conductor's alarm threshold for the key
+// "max_current" or "step": its own entry's when it gives one (own true),
+// else the asset's [asset.alarms] value. A conductor the site file does
+// not list (a commissioned asset without entries) takes the asset's.
+func (a *AssetConfig) conductorLimit(name, key string) (v float64, own bool) {
+	for i := range a.Conductors {
+		c := &a.Conductors[i]
+		if c.Name != name {
+			continue
+		}
+		switch {
+		case key == "max_current" && c.MaxCurrent != nil:
+			return *c.MaxCurrent, true
+		case key == "step" && c.Step != nil:
+			return *c.Step, true
+		}
+		break
+	}
+	if key == "max_current" {
+		return a.Alarms.MaxCurrent, false
+	}
+	return a.Alarms.Step, false
+}
+
 // AlarmConfig is the [asset.alarms] table; a zero threshold disables its alarm.
 type AlarmConfig struct {
-	// MaxCurrent: |I| of any conductor above this (A, RMS for AC).
+	// MaxCurrent: |I| of any conductor above this (A, RMS for AC), for
+	// the conductors that do not give their own (ConductorConfig).
 	MaxCurrent float64 `toml:"max_current"`
 	// Balance names conductors whose currents should sum to zero (a go and
 	// its return); MaxImbalance is the largest |sum| tolerated, A.
 	Balance      []string `toml:"balance"`
 	MaxImbalance float64  `toml:"max_imbalance"`
-	// Step: |change| of a conductor's current between consecutive windows, A.
+	// Step: |change| of a conductor's current between consecutive
+	// windows, A, for the conductors that do not give their own.
 	Step float64 `toml:"step"`
 	// MaxChi2 is the reduced chi-square above which the fit is degraded;
 	// 0 means 25.
@@ -366,8 +401,13 @@ func ParseSite(name string, data []byte) (*Site, error) {
 		// line and column, as the decoder's refusals are (decodeError).
 		var ke *keyError
 		if errors.As(err, &ke) {
-			table, key, _ := strings.Cut(ke.key, ".")
-			if line, col := tableKey(data, "["+table+"]", 0, key); line > 0 {
+			header, index, key := ke.header, ke.index, ke.key
+			if header == "" {
+				var table string
+				table, key, _ = strings.Cut(ke.key, ".")
+				header, index = "["+table+"]", 0
+			}
+			if line, col := tableKey(data, header, index, key); line > 0 {
 				return nil, fmt.Errorf("live: %s:%d:%d: %w", name, line, col, err)
 			}
 		}
@@ -514,6 +554,14 @@ func (s *Site) validate() error {
 			a.Start = s.Service.Start
 		}
 		if err := a.validate(filepath.Dir(s.Path)); err != nil {
+			var ke *keyError
+			if errors.As(err, &ke) && ke.header == "[[asset.conductor]]" {
+				// a.validate numbers the asset's own conductors; the
+				// file's line is found by its place among all of them.
+				for _, b := range s.Assets[:i] {
+					ke.index += len(b.Conductors)
+				}
+			}
 			return fmt.Errorf("asset %q: %w", a.Name, err)
 		}
 	}
@@ -598,6 +646,15 @@ func (a *AssetConfig) validate(dir string) error {
 			return fmt.Errorf("conductor %q listed twice", c.Name)
 		}
 		cnames[c.Name] = true
+		for _, l := range []struct {
+			key string
+			v   *float64
+		}{{"max_current", c.MaxCurrent}, {"step", c.Step}} {
+			if l.v != nil && (*l.v < 0 || math.IsNaN(*l.v)) {
+				return &keyError{header: "[[asset.conductor]]", index: i, key: l.key,
+					err: fmt.Errorf("conductor %q: %s %v: want a threshold in A, 0 or more (0 turns the alarm off for this conductor)", c.Name, l.key, *l.v)}
+			}
+		}
 		if a.Model == "commission" {
 			// The geometry is fitted; the entry names the conductor and
 			// may say roughly where it runs (point: to match the fitted
@@ -849,13 +906,18 @@ func (b *BrokerConfig) SyncSetting() (always bool, every time.Duration, err erro
 	}
 }
 
-// keyError is a [service] or [broker] value that validate refuses after
-// decoding; key is its dotted name ("broker.store_sync"), by which
+// keyError is a [service] or [broker] value, or a conductor's alarm
+// setting, that validate refuses after decoding; key is its dotted name ("broker.store_sync"), by which
 // ParseSite finds its line and column in the file. Before, such values
 // were refused naming the file only.
 type keyError struct {
 	key string
 	err error
+	// header and index, when header is set, are the table the key is in
+	// ("[[asset.conductor]]") and its place among the file's tables of
+	// that header (0-based); key is then the key within it.
+	header string
+	index  int
 }
 
 func (e *keyError) Error() string { return e.err.Error() }
