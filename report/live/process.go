@@ -257,6 +257,13 @@ func (p *processor) reduce(w *window) *reduced {
 			r.alarms = append(r.alarms, p.alarm(w, AlarmSaturated, s.Name, v, s.Range, saturatedMessage(s.Name, axis, v, s.Range, beyond)))
 			continue
 		}
+		if a.Mode == "ac" {
+			if axis, v, share, both := railAxis(&sr, a.Frequency, a.Noise); axis != "" {
+				r.missing[s.Name] = "saturated"
+				r.alarms = append(r.alarms, p.alarm(w, AlarmSaturated, s.Name, v, 0, railMessage(s.Name, axis, v, share, a.Noise, both)))
+				continue
+			}
+		}
 		if axis, v := p.stuckAxis(s.Name, &sr); axis != "" {
 			r.missing[s.Name] = "stuck"
 			r.alarms = append(r.alarms, p.alarm(w, AlarmStuck, s.Name, v, 0,
