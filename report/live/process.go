@@ -546,10 +546,25 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 		// The estimator's error is for the log (the worker logs
 		// solveErr); the alarm says what an operator can act on.
 		msg := fmt.Sprintf("no estimate: no sensor gave enough usable samples (at least %d) in the window", minSamples)
+		var sat []string
+		for _, s := range a.Sensors {
+			if r.missing[s.Name] == "saturated" {
+				sat = append(sat, s.Name)
+			}
+		}
+		switch {
+		case len(r.used) == 0 && len(sat) == len(a.Sensors):
+			msg = fmt.Sprintf("no estimate: every sensor was saturated in the window (%s): the field is beyond the sensors' range, so no current can be read from them and no over-current alarm raised (a field beyond their range may itself mean a large current: check the site, and the sensors' range)", strings.Join(sat, ", "))
+		case len(r.used) == 0 && len(sat) > 0:
+			msg = fmt.Sprintf("no estimate: no sensor gave usable samples in the window; saturated: %s (the field beyond their range), the others silent, short of samples or left out (see missing)", strings.Join(sat, ", "))
+		}
 		if len(r.used) > 0 {
 			msg = fmt.Sprintf("no estimate: the fit with the %d usable sensors failed (see the log)", len(r.used))
 			if sn := p.largestField(r); sn != "" && nonFiniteOutput(out) != "" {
 				msg = fmt.Sprintf("no estimate: the fit with the %d usable sensors gave non-finite values (the readings are far beyond any field; the largest, sensor %s's, is %.4g nT)", len(r.used), sn, p.fieldOf(r, sn))
+			}
+			if len(sat) > 0 {
+				msg += fmt.Sprintf("; left out as saturated (the field beyond their range): %s", strings.Join(sat, ", "))
 			}
 		}
 		return p.failed(w, e, r.alarms, msg)

@@ -45,8 +45,10 @@ func busProcessor(t *testing.T, site *AssetConfig) *processor {
 // range_nt: their flat-topped waveforms passed, the bars read 261, 284
 // and 254 A for 2000 A (review: 257, 280, 256 A), no sensor was named
 // and the alarm blamed the model. Each sensor is now left out as
-// saturated with an alarm that says it held its rail, and no
-// over-current alarm comes from the clipped readings. The same with the rail read through 10 nT of
+// saturated with an alarm that says it held its rail; with every sensor
+// clipped the failed window says so (it said no sensor gave enough
+// samples, though each gave 1000), and no over-current alarm comes from
+// the clipped readings. The same with the rail read through 10 nT of
 // readout noise (noise = 10 stated), with noise = 0 (the rail exact),
 // and with range_nt stated (saturatedAxis).
 //
@@ -101,6 +103,11 @@ func TestACRailWithoutRangeLeftOut(t *testing.T) {
 		}
 		if n != len(site.Sensors) {
 			t.Errorf("%s: %d saturated alarms for %d sensors", c.name, n, len(site.Sensors))
+		}
+		al, _ := alarmFor(alarms, AlarmDegraded, "")
+		t.Logf("%s: %s", c.name, al.Message)
+		if !strings.Contains(al.Message, "every sensor was saturated in the window (s1, s2, s3, s4, s5)") || strings.Contains(al.Message, "enough usable samples") {
+			t.Errorf("%s: failed window's alarm %q; want it worded as saturation", c.name, al.Message)
 		}
 	}
 }
@@ -229,5 +236,38 @@ func TestRailAxisSineNotRail(t *testing.T) {
 				t.Errorf("seed %d, %s: axis %q (share %.3f), want a rail %v", seed, c.name, axis, share, c.rail)
 			}
 		}
+	}
+}
+
+// A window whose sensors are saturated but for one that sent nothing
+// names the saturated ones in its failure (it said no sensor gave enough
+// samples, as for a window of silent sensors).
+func TestACRailSomeSaturatedOthersSilent(t *testing.T) {
+	site := threeBarSite(t, "10", "fixed", rowAbove)
+	p := busProcessor(t, site)
+	w := threeBarWindow(site, 1796279400, 10, false, rand.New(rand.NewPCG(1, 20)))
+	clip(w, 100000, 0, nil)
+	w.Sensors[4] = series{}
+	e, alarms := p.solve(w, p.reduce(w))
+	al, _ := alarmFor(alarms, AlarmDegraded, "")
+	if e.Quality != "failed" || e.Missing["s5"] != "silent" || !strings.Contains(al.Message, "saturated: s1, s2, s3, s4 (") {
+		t.Errorf("quality %s, missing %v, alarm %q; want failed, s5 silent, s1-s4 named saturated", e.Quality, e.Missing, al.Message)
+	}
+}
+
+// A fit that fails with the one sensor left (three AC currents from one
+// sensor's three phasors) names the saturated ones too.
+func TestACRailFitFailsNamesSaturated(t *testing.T) {
+	site := threeBarSite(t, "10", "fixed", rowAbove)
+	p := busProcessor(t, site)
+	w := threeBarWindow(site, 1796279400, 10, false, rand.New(rand.NewPCG(1, 20)))
+	s1 := w.Sensors[0]
+	s1.T, s1.Bx, s1.By, s1.Bz = append([]float64(nil), s1.T...), append([]float64(nil), s1.Bx...), append([]float64(nil), s1.By...), append([]float64(nil), s1.Bz...)
+	clip(w, 100000, 0, nil)
+	w.Sensors[0] = s1
+	e, alarms := p.solve(w, p.reduce(w))
+	al, _ := alarmFor(alarms, AlarmDegraded, "")
+	if e.Quality != "failed" || !strings.Contains(al.Message, "1 usable sensors failed") || !strings.Contains(al.Message, "left out as saturated (the field beyond their range): s2, s3, s4, s5") {
+		t.Errorf("quality %s, missing %v, alarm %q; want failed, s2-s5 named saturated", e.Quality, e.Missing, al.Message)
 	}
 }
