@@ -469,7 +469,8 @@ const maxCommissionChi2 = 25
 
 // commissionMisfit refuses conductors that miss the mean readings of p by
 // more than sqrt(maxCommissionChi2) times windowSigma RMS (nothing is
-// refused when windowSigma is 0).
+// refused when windowSigma is 0: with noise = 0 meanReadings gives it
+// from the windows' own scatter, 0 only when that is not known).
 func commissionMisfit(p *inverse.Problem, windowSigma float64, conds []ConductorConfig) error {
 	if !(windowSigma > 0) {
 		return nil
