@@ -343,7 +343,7 @@ func (w *assetWorker) commission(win *window) error {
 				err = fmt.Errorf("%w; without sensor %s the readings commission: its orientation or position in the site file is likely wrong, or it was moved or turned", err, name)
 			}
 			// The likely causes, unless the refusal gave them already.
-			causes := " (an extended conductor such as a flat bar close to the sensors, a bend, another source near the sensors, " +
+			causes := " (an extended conductor such as a flat bar close to the sensors, a bend, another source near the sensors, a conducting enclosure or screen (AC), " +
 				"or a sensor's position or orientation in the site file wrong)"
 			if strings.Contains(err.Error(), "flat bar") {
 				causes = ""

@@ -632,7 +632,7 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 		if s := p.worstSensors(r); s != "" {
 			worst = "; the sensors the fit misses most, with the share of the misfit that leaving each out removes: " + s
 		}
-		model := "; a misfit spread over several sensors points to a conductor the thin-line model does not describe (a flat bar, a bend or another source close to the sensors: a line's field differs from a strip's of width w at distance d by about (w/d)^2/12) or to a wrong geometry, one at a single sensor to that sensor (moved, turned, its offset changed)"
+		model := "; a misfit spread over several sensors points to a conductor the thin-line model does not describe (a flat bar, a bend or another source close to the sensors: a line's field differs from a strip's of width w at distance d by about (w/d)^2/12; or, in AC, a conducting enclosure or screen between the conductors and the sensors, which shields and turns the field) or to a wrong geometry, one at a single sensor to that sensor (moved, turned, its offset changed)"
 		if fr := r.frozenUsed(a); fr != "" {
 			model = "; " + fr + " repeated one reading on every axis through the window (frozen: a hung logger or a stuck output, called stuck if it repeats it through the next window too): its readings are likely the misfit; check its logger and output"
 		}
