@@ -220,7 +220,7 @@ func (p *processor) windowChangeAC(r *reduced) *windowSplit {
 			for H > 1 && hi-lo < acChangeBlockRuns*acCols(H) {
 				H--
 			}
-			ph, _, g, err := acPhasors(d.t[lo:hi], [3][]float64{d.bx[lo:hi], d.by[lo:hi], d.bz[lo:hi]}, f, H, r.ref)
+			ph, _, g, _, err := acPhasors(d.t[lo:hi], [3][]float64{d.bx[lo:hi], d.by[lo:hi], d.bz[lo:hi]}, f, H, r.ref)
 			if err != nil {
 				return nil, err
 			}

@@ -99,13 +99,17 @@ func (r phaseRef) turn(h int, freq, t0 float64) float64 {
 // of white noise sigma, from the fit's covariance (X^T X)^-1 (its mean
 // over the fundamental's two coefficients). g is 1 over whole cycles of
 // evenly spaced readings, and grows when the harmonics' columns are not
-// orthogonal to the fundamental's over the readings.
-func acPhasors(t []float64, axes [3][]float64, freq float64, H int, ref phaseRef) ([3]complex128, [][3]complex128, float64, error) {
+// orthogonal to the fundamental's over the readings. scatter is the
+// readings' own noise about the fit, nT per reading: the RMS over the
+// three axes of each axis's residual standard deviation,
+// sqrt(RSS / (n - p)) for p fitted columns (the unbiased estimate of the
+// variance of least-squares residuals); 0 when fewer than
+// scatterSamples degrees of freedom are left to estimate it.
+func acPhasors(t []float64, axes [3][]float64, freq float64, H int, ref phaseRef) (ph [3]complex128, harm [][3]complex128, g, scatter float64, err error) {
 	n := len(t)
 	p := acCols(H)
-	var ph [3]complex128
 	if n <= p || !(freq > 0) {
-		return ph, nil, 0, errACFit
+		return ph, nil, 0, 0, errACFit
 	}
 	t0 := t[0]
 	w := 2 * math.Pi * freq
@@ -125,7 +129,7 @@ func acPhasors(t []float64, axes [3][]float64, freq float64, H int, ref phaseRef
 	qr.Factorize(X)
 	var beta mat.Dense
 	if err := qr.SolveTo(&beta, false, Y); err != nil {
-		return ph, nil, 0, errACFit
+		return ph, nil, 0, 0, errACFit
 	}
 	// The local RMS phasor of a cos/sin pair (a, b) is (a - ib)/sqrt 2,
 	// turned to the reference.
@@ -136,10 +140,9 @@ func acPhasors(t []float64, axes [3][]float64, freq float64, H int, ref phaseRef
 	for a := range 3 {
 		ph[a] = local(0, a, 1)
 		if math.IsNaN(real(ph[a])) || math.IsNaN(imag(ph[a])) {
-			return ph, nil, 0, errACFit
+			return ph, nil, 0, 0, errACFit
 		}
 	}
-	var harm [][3]complex128
 	for h := 2; h <= H; h++ {
 		var e [3]complex128
 		for a := range 3 {
@@ -159,7 +162,7 @@ func acPhasors(t []float64, axes [3][]float64, freq float64, H int, ref phaseRef
 	}
 	var Ri mat.TriDense
 	if err := Ri.InverseTri(R); err != nil {
-		return ph, nil, 0, errACFit
+		return ph, nil, 0, 0, errACFit
 	}
 	var c float64
 	for i := range 2 {
@@ -169,9 +172,21 @@ func acPhasors(t []float64, axes [3][]float64, freq float64, H int, ref phaseRef
 	}
 	// Each of A and B has variance 2 sigma^2/n over whole cycles, and
 	// each quadrature of the RMS phasor (A - iB)/sqrt 2 half their mean.
-	g := math.Sqrt(c / 2 * float64(n) / 2)
+	g = math.Sqrt(c / 2 * float64(n) / 2)
 	if !(g > 0) || math.IsInf(g, 0) {
-		return ph, nil, 0, errACFit
+		return ph, nil, 0, 0, errACFit
 	}
-	return ph, harm, g, nil
+	if n-p >= scatterSamples {
+		var fit mat.Dense
+		fit.Mul(X, &beta)
+		var rss float64
+		for i := range n {
+			for a := range 3 {
+				d := Y.At(i, a) - fit.At(i, a)
+				rss += d * d
+			}
+		}
+		scatter = math.Sqrt(rss / float64(3*(n-p)))
+	}
+	return ph, harm, g, scatter, nil
 }

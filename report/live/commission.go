@@ -343,7 +343,7 @@ func (w *assetWorker) commission(win *window) error {
 				err = fmt.Errorf("%w; without sensor %s the readings commission: its orientation or position in the site file is likely wrong, or it was moved or turned", err, name)
 			}
 			// The likely causes, unless the refusal gave them already.
-			causes := " (an extended conductor such as a flat bar close to the sensors, a bend, another source near the sensors, " +
+			causes := " (an extended conductor such as a flat bar close to the sensors, a bend, another source near the sensors, a conducting enclosure or screen (AC), " +
 				"or a sensor's position or orientation in the site file wrong)"
 			if strings.Contains(err.Error(), "flat bar") {
 				causes = ""
@@ -525,6 +525,10 @@ func meanReadings(reds []*reduced, nsensors int, ac bool) SolveInput {
 	fields := map[int][3]float64{}
 	phasors := map[int][3]complex128{}
 	variance := map[int]float64{} // sum of the windows' reading variances, nT^2
+	// measured sums the variances the windows' own scatter gives
+	// (reduced.scatter), for noise = 0; a sensor's is dropped (negative)
+	// when a window of it has none.
+	measured := map[int]float64{}
 	// AC phasors are referred to cos(2 pi f t): when the grid is off the
 	// site's frequency their phase turns from window to window, so each
 	// window is turned to the phase of the first window's strongest
@@ -562,6 +566,11 @@ func meanReadings(reds []*reduced, nsensors int, ac bool) SolveInput {
 				sig = r.in.Sigmas[j]
 			}
 			variance[si] += sig * sig
+			if j < len(r.scatter) && r.scatter[j] > 0 && measured[si] >= 0 {
+				measured[si] += r.scatter[j] * r.scatter[j]
+			} else {
+				measured[si] = -1
+			}
 			if r.in.Fields != nil {
 				f := fields[si]
 				for k := range 3 {
@@ -581,6 +590,7 @@ func meanReadings(reds []*reduced, nsensors int, ac bool) SolveInput {
 	// the commissioning fit weighs its readings, and tells a resolved
 	// line from an unresolved pair, by that, not by one window's noise.
 	var perWindow []float64 // each sensor's RMS window noise
+	var scattered []float64 // the same from the windows' own scatter
 	for si := range nsensors {
 		n := counts[si]
 		if n == 0 {
@@ -590,6 +600,9 @@ func meanReadings(reds []*reduced, nsensors int, ac bool) SolveInput {
 		if v := variance[si]; v > 0 {
 			sum.Sigmas = append(sum.Sigmas, math.Sqrt(v)/float64(n))
 			perWindow = append(perWindow, math.Sqrt(v/float64(n)))
+		}
+		if v := measured[si]; v > 0 {
+			scattered = append(scattered, math.Sqrt(v/float64(n)))
 		}
 		if ac {
 			p := phasors[si]
@@ -614,6 +627,15 @@ func meanReadings(reds []*reduced, nsensors int, ac bool) SolveInput {
 		sum.WindowSigma = perWindow[len(perWindow)/2]
 	} else {
 		sum.Sigmas = nil
+		if len(scattered) == len(sum.Points) && len(scattered) > 0 {
+			// noise = 0: the fit is weighed by its own residuals as
+			// before, but its misfit is judged (commissionMisfit)
+			// against the noise the windows measured, as each window's
+			// fit is (judged); without it lines that miss a flat bar by
+			// thousands of times the noise were stored.
+			sort.Float64s(scattered)
+			sum.WindowSigma = scattered[len(scattered)/2]
+		}
 	}
 	return sum
 }

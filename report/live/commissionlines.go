@@ -469,7 +469,8 @@ const maxCommissionChi2 = 25
 
 // commissionMisfit refuses conductors that miss the mean readings of p by
 // more than sqrt(maxCommissionChi2) times windowSigma RMS (nothing is
-// refused when windowSigma is 0).
+// refused when windowSigma is 0: with noise = 0 meanReadings gives it
+// from the windows' own scatter, 0 only when that is not known).
 func commissionMisfit(p *inverse.Problem, windowSigma float64, conds []ConductorConfig) error {
 	if !(windowSigma > 0) {
 		return nil
@@ -529,7 +530,7 @@ func misfitAt(p *inverse.Problem, src []inverse.Source, rms, limit float64) stri
 		pt := p.Points[best]
 		return fmt.Sprintf(" ("+misfitAtSensor+" [%g, %g, %g]: without it they miss by %.3g nT RMS; its position or orientation in the site file is likely wrong, or it was moved)", pt[0], pt[1], pt[2], bestRMS)
 	}
-	return " (an extended conductor such as a flat bar close to the sensors, a bend, or another source near the sensors; or a sensor's position or orientation in the site file wrong)"
+	return " (an extended conductor such as a flat bar close to the sensors, a bend, another source near the sensors, or a conducting enclosure or screen (AC); or a sensor's position or orientation in the site file wrong)"
 }
 
 // misfitAtSensor begins misfitAt's naming of one sensor.

@@ -119,8 +119,10 @@ type reduced struct {
 	// averages out).
 	totals []float64
 	// counts are the used sensors' sample counts, and scatter the
-	// one-sigma of their DC window means from their samples' own scatter
-	// (sampleScatter; nil for AC), in the order of used.
+	// one-sigma of their readings from their samples' own scatter, in the
+	// order of used: of a DC window's means (sampleScatter), of each
+	// quadrature of an AC window's phasors (acPhasors' scatter about the
+	// fit, times its noise gain over sqrt n; 0 when too few samples).
 	counts  []int
 	scatter []float64
 	// spikes counts, per sensor, the readings left out of a DC window's
@@ -258,6 +260,13 @@ func (p *processor) reduce(w *window) *reduced {
 			r.alarms = append(r.alarms, p.alarm(w, AlarmSaturated, s.Name, v, s.Range, saturatedMessage(s.Name, axis, v, s.Range, beyond)))
 			continue
 		}
+		if a.Mode == "ac" {
+			if axis, v, share, both := railAxis(&sr, a.Frequency, a.Noise); axis != "" {
+				r.missing[s.Name] = "saturated"
+				r.alarms = append(r.alarms, p.alarm(w, AlarmSaturated, s.Name, v, 0, railMessage(s.Name, axis, v, share, a.Noise, both)))
+				continue
+			}
+		}
 		if axis, v := p.stuckAxis(s.Name, &sr); axis != "" {
 			r.missing[s.Name] = "stuck"
 			r.alarms = append(r.alarms, p.alarm(w, AlarmStuck, s.Name, v, 0,
@@ -326,12 +335,15 @@ func (p *processor) reduce(w *window) *reduced {
 		if a.Mode == "ac" {
 			// The fundamental with the harmonics the readings allow
 			// (acPhasors), so that a harmonic does not leak into it.
-			ph, harm, g, err := acPhasors(d.t, [3][]float64{d.bx, d.by, d.bz}, r.freq, acFitHarmonics(d.t, r.freq), r.ref)
+			ph, harm, g, sc, err := acPhasors(d.t, [3][]float64{d.bx, d.by, d.bz}, r.freq, acFitHarmonics(d.t, r.freq), r.ref)
 			if err != nil {
 				r.missing[s.Name] = err.Error()
 				continue
 			}
 			gains = append(gains, g)
+			// Each quadrature's noise from the readings' own scatter
+			// about the fit, as the stated noise's below.
+			r.scatter = append(r.scatter, sc*g/math.Sqrt(float64(len(d.t))))
 			r.ac = append(r.ac, d)
 			enu := func(ph [3]complex128) [3]complex128 {
 				var e [3]complex128
@@ -537,10 +549,25 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 		// The estimator's error is for the log (the worker logs
 		// solveErr); the alarm says what an operator can act on.
 		msg := fmt.Sprintf("no estimate: no sensor gave enough usable samples (at least %d) in the window", minSamples)
+		var sat []string
+		for _, s := range a.Sensors {
+			if r.missing[s.Name] == "saturated" {
+				sat = append(sat, s.Name)
+			}
+		}
+		switch {
+		case len(r.used) == 0 && len(sat) == len(a.Sensors):
+			msg = fmt.Sprintf("no estimate: every sensor was saturated in the window (%s): the field is beyond the sensors' range, so no current can be read from them and no over-current alarm raised (a field beyond their range may itself mean a large current: check the site, and the sensors' range)", strings.Join(sat, ", "))
+		case len(r.used) == 0 && len(sat) > 0:
+			msg = fmt.Sprintf("no estimate: no sensor gave usable samples in the window; saturated: %s (the field beyond their range), the others silent, short of samples or left out (see missing)", strings.Join(sat, ", "))
+		}
 		if len(r.used) > 0 {
 			msg = fmt.Sprintf("no estimate: the fit with the %d usable sensors failed (see the log)", len(r.used))
 			if sn := p.largestField(r); sn != "" && nonFiniteOutput(out) != "" {
 				msg = fmt.Sprintf("no estimate: the fit with the %d usable sensors gave non-finite values (the readings are far beyond any field; the largest, sensor %s's, is %.4g nT)", len(r.used), sn, p.fieldOf(r, sn))
+			}
+			if len(sat) > 0 {
+				msg += fmt.Sprintf("; left out as saturated (the field beyond their range): %s", strings.Join(sat, ", "))
 			}
 		}
 		return p.failed(w, e, r.alarms, msg)
@@ -605,7 +632,7 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 		if s := p.worstSensors(r); s != "" {
 			worst = "; the sensors the fit misses most, with the share of the misfit that leaving each out removes: " + s
 		}
-		model := "; a misfit spread over several sensors points to a conductor the thin-line model does not describe (a flat bar, a bend or another source close to the sensors: a line's field differs from a strip's of width w at distance d by about (w/d)^2/12) or to a wrong geometry, one at a single sensor to that sensor (moved, turned, its offset changed)"
+		model := "; a misfit spread over several sensors points to a conductor the thin-line model does not describe (a flat bar, a bend or another source close to the sensors: a line's field differs from a strip's of width w at distance d by about (w/d)^2/12; or, in AC, a conducting enclosure or screen between the conductors and the sensors, which shields and turns the field) or to a wrong geometry, one at a single sensor to that sensor (moved, turned, its offset changed)"
 		if fr := r.frozenUsed(a); fr != "" {
 			model = "; " + fr + " repeated one reading on every axis through the window (frozen: a hung logger or a stuck output, called stuck if it repeats it through the next window too): its readings are likely the misfit; check its logger and output"
 		}

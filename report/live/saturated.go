@@ -61,3 +61,100 @@ func saturatedMessage(name, axis string, v, rng float64, beyond bool) string {
 	}
 	return fmt.Sprintf("sensor %s read %.8g nT on axis %s, at its range of ±%.8g nT: its readings are clipped and left out", name, v, axis, rng)
 }
+
+// A sensor clipped at its rail without range_nt stated: its AC readings
+// are flat-topped, sitting on one value through part of every half cycle
+// at one end or both, but the stuck test (stuckAxis) needs one value
+// through the whole window and saturatedAxis a stated range. Three
+// 100 x 10 mm bars of 2000 A seen 0.3 m away by sensors clipped at
+// ±100,000 nT read 257, 280 and 256 A, and the alarm blamed the model.
+// A sine spends almost none of its time at its extreme value: an AC
+// axis holding its window's highest or lowest reading for more than
+// railShare of its samples, and more than a sine could (railAxis), is
+// taken as clipped at the sensor's rail, and the sensor left out as
+// saturated.
+
+// railShare is the least share of a window's samples at an axis's
+// extreme value for it to be taken as a rail: clipping that holds less
+// trims the peaks by under 1.2 % (a rail at cos(pi railShare) = 0.988 of
+// the peak holds the sine for railShare of its cycle).
+const railShare = 0.05
+
+// railAxis returns the axis of an AC window's readings sr (raw, as the
+// sensor clips them) that holds its highest or lowest value for more
+// than railShare of its samples and more than 1.5 times what a sine at
+// freq, Hz, could; noise is the asset's noise per reading, nT (0 when not
+// stated). A rail read through a logger's readout noise scatters about
+// the rail, so with noise stated the samples within 6 noise of the
+// extreme value are counted as held; with noise = 0 only the extreme
+// value itself. What a sine could hold: two samples a cycle (a sine
+// sampled in step with the grid repeats its peak sample's value each
+// cycle, twice when the peak falls midway between two samples), plus its
+// share of time within d of its peak, acos(1 - d/A)/pi for amplitude A
+// (half the axis's range) and d two resolution steps (smallestStep:
+// readings rounded to a coarse resolution hold the top step) plus twice
+// the 6 noise counted. It returns the value held (the extreme), its
+// share of the samples, and whether the axis is held at both ends
+// (symmetric clipping); "" when no axis is.
+func railAxis(sr *series, freq, noise float64) (axis string, v, share float64, both bool) {
+	n := len(sr.T)
+	if n < scatterSamples || !(sr.T[n-1] > sr.T[0]) || !(freq > 0) {
+		return "", 0, 0, false
+	}
+	perCycle := float64(n-1) / (sr.T[n-1] - sr.T[0]) / freq
+	band := 0.0
+	if noise > 0 {
+		band = 6 * noise
+	}
+	for k, col := range [][]float64{sr.Bx, sr.By, sr.Bz} {
+		if len(col) != n {
+			continue
+		}
+		lo, hi := col[0], col[0]
+		for _, x := range col {
+			lo, hi = math.Min(lo, x), math.Max(hi, x)
+		}
+		if !(hi > lo) {
+			continue // one value through the window: stuckAxis's
+		}
+		var nlo, nhi int
+		for _, x := range col {
+			if x <= lo+band {
+				nlo++
+			}
+			if x >= hi-band {
+				nhi++
+			}
+		}
+		q := smallestStep(col)
+		sine := 2/perCycle + math.Acos(math.Max(-1, 1-(2*q+2*band)/((hi-lo)/2)))/math.Pi
+		lim := math.Max(railShare, 1.5*sine)
+		slo, shi := float64(nlo)/float64(n), float64(nhi)/float64(n)
+		if slo <= lim && shi <= lim {
+			continue
+		}
+		s, val := shi, hi
+		if slo > shi {
+			s, val = slo, lo
+		}
+		if s > share {
+			axis, v, share, both = [3]string{"x", "y", "z"}[k], val, s, slo > lim && shi > lim
+		}
+	}
+	return axis, v, share, both
+}
+
+// railMessage is the saturated alarm's text for sensor name held at v nT
+// (within 6 noise of it when noise, nT, is stated) on axis for share of
+// the window's samples (railAxis).
+func railMessage(name, axis string, v, share, noise float64, both bool) string {
+	ends := "at one end"
+	if both {
+		ends = "at both ends"
+	}
+	at := fmt.Sprintf("held %.8g nT", v)
+	if noise > 0 {
+		at = fmt.Sprintf("held within %.3g nT (6 times the noise) of %.8g nT", 6*noise, v)
+	}
+	return fmt.Sprintf("sensor %s %s on axis %s for %.0f%% of the window's samples, its waveform flat-topped %s where a sine spends almost none of its time at one value: clipped at its rail (the field is beyond its range; range_nt is not stated): its readings are left out", name, at, axis, 100*share, ends)
+}

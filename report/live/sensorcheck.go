@@ -77,8 +77,9 @@ func smallestStep(col []float64) float64 {
 // judged is a window's input with the sigmas its fit is judged by: the
 // stated noise's (r.in) or, with noise = 0 (the sigmas taken from the fit's
 // own residuals, which a model error enters as if it were noise), each
-// sensor's scatter of its samples about their mean (DC). ok is false when
-// neither is known (an AC window with noise = 0).
+// sensor's scatter of its samples about their mean (DC) or about its sine
+// fit (AC). ok is false when neither is known (noise = 0 and a sensor
+// with too few samples, or none scattered).
 func (p *processor) judged(r *reduced) (in *SolveInput, ok bool) {
 	if p.asset.Noise > 0 {
 		return &r.in, true

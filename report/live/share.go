@@ -168,7 +168,7 @@ func (p *processor) shareAlarms(w *window, e *Estimate) []Alarm {
 		}
 		by := ""
 		if v.sigma > 0 {
-			by = fmt.Sprintf(" by %.3g sigma", (v.share-limit)/v.sigma)
+			by = fmt.Sprintf(" by %.3g times its uncertainty", (v.share-limit)/v.sigma)
 		}
 		cur := v.share * v.denom
 		al := p.alarm(w, AlarmShare, cc.Name, v.share, limit,
