@@ -2,6 +2,7 @@ package report
 
 import (
 	"math"
+	"math/cmplx"
 	"math/rand/v2"
 	"testing"
 
@@ -91,7 +92,8 @@ func TestLocateHighRateCoarse(t *testing.T) {
 }
 
 // TestThinReadings keeps every k-th reading, the ends and each axis's
-// extremes, and leaves a short traverse alone.
+// extremes (for AC readings the moduli's, with their travel), and leaves
+// a short traverse alone.
 func TestThinReadings(t *testing.T) {
 	f := highRateDrum(t, 3001, 2)
 	p := f.Problem
@@ -123,6 +125,40 @@ func TestThinReadings(t *testing.T) {
 	for i := 1; i < len(q.Points); i++ {
 		if q.Points[i][1] <= q.Points[i-1][1] {
 			t.Fatalf("reading %d out of order", i)
+		}
+	}
+
+	// AC readings with travel: the largest and smallest moduli kept, each
+	// reading's travel beside it.
+	ac := &inverse.Problem{Points: p.Points, Sigma: p.Sigma}
+	for i, b := range p.Fields {
+		var z [3]complex128
+		for a := range 3 {
+			z[a] = complex(0, b[a]) // modulus |b[a]|
+		}
+		ac.Phasors = append(ac.Phasors, z)
+		ac.Travel = append(ac.Travel, [3]float64{0, float64(i), 0})
+	}
+	qa := thinReadings(ac, coarseReadings)
+	if len(qa.Phasors) != len(qa.Points) || len(qa.Travel) != len(qa.Points) || qa.Fields != nil {
+		t.Fatalf("AC: %d points, %d phasors, %d travels, fields %v", len(qa.Points), len(qa.Phasors), len(qa.Travel), qa.Fields != nil)
+	}
+	for i, r := range qa.Points {
+		if j := int(qa.Travel[i][1]); p.Points[j] != r || imag(qa.Phasors[i][0]) != p.Fields[j][0] {
+			t.Fatalf("AC reading %d: travel or phasor of reading %d beside position %v", i, j, r)
+		}
+	}
+	for a := range 3 {
+		hi, lo := 0.0, math.Inf(1)
+		for _, b := range p.Fields {
+			hi, lo = math.Max(hi, math.Abs(b[a])), math.Min(lo, math.Abs(b[a]))
+		}
+		var gotHi, gotLo bool
+		for _, z := range qa.Phasors {
+			gotHi, gotLo = gotHi || cmplx.Abs(z[a]) == hi, gotLo || cmplx.Abs(z[a]) == lo
+		}
+		if !gotHi || !gotLo {
+			t.Errorf("AC axis %d: largest modulus kept %v, smallest %v", a, gotHi, gotLo)
 		}
 	}
 }
