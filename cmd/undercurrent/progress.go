@@ -62,3 +62,29 @@ func rateText(rows int64, elapsed time.Duration) string {
 	}
 	return fmt.Sprintf(", %.*f%s rows/s", d, r, unit)
 }
+
+// batchProgress returns a function that shows the batches sent of the
+// total on stderr when it is a terminal, and one that clears the display
+// (both do nothing otherwise).
+func batchProgress(stderr io.Writer, desc string) (func(done, total int), func()) {
+	w := progressOn(stderr)
+	if w == nil {
+		return nil, func() {}
+	}
+	var bar *progressbar.ProgressBar
+	return func(done, total int) {
+			if bar == nil {
+				bar = progressbar.NewOptions(total,
+					progressbar.OptionSetWriter(w),
+					progressbar.OptionSetDescription(desc),
+					progressbar.OptionShowCount(),
+					progressbar.OptionClearOnFinish(),
+					progressbar.OptionThrottle(100*time.Millisecond))
+			}
+			_ = bar.Set(done)
+		}, func() {
+			if bar != nil {
+				_ = bar.Finish()
+			}
+		}
+}

@@ -69,6 +69,12 @@ running, an --asset its site file does not list is refused (the
 pipeline would dead-letter every batch); with none running, replay
 cannot tell.
 
+The log is read twice, so that it need not be held whole: once to check it
+and count its batches (nothing is sent from a log refused), then to send
+its batches as they are cut. A log whose sensors' rows follow one
+another instead of running together in time, or one read with
+--time-order any (sorted in memory), is held about whole.
+
 Replay reads the data stream's state and waits for the broker's
 acknowledgement of every batch (JetStream), so its account must be allowed
 the JetStream API ($JS.API.>) and replies (_INBOX.>) besides publishing:
@@ -158,16 +164,11 @@ func runReplay(ctx context.Context, o *replayOptions, fs *pflag.FlagSet, args []
 		// are not the first's.
 		return usageErrorf("give --resume without --now: --now shifts the log by the clock of each run, so the rest would not line up with what was stored; give the first run's shift with --shift")
 	}
-	batches, warns, err := replayBatches(ctx, o, fs, args[0])
+	src, first, last, stop, err := replayLog(ctx, o, fs, args[0], stdout, stderr)
 	if err != nil {
 		return err
 	}
-	for _, w := range warns {
-		fmt.Fprintf(stdout, "warning: %s\n", w)
-	}
-	if err := checkBatchBytes(args[0], batches, o.format, o.maxBytes, o.batch); err != nil {
-		return err
-	}
+	defer stop()
 	set := &broker.ReplaySettings{Speed: o.speed, Encoding: enc, Shift: o.shift, MaxAhead: o.maxAhead, Resume: o.resume, Mark: true,
 		Notify: func(msg string) { fmt.Fprintf(stderr, "replay: %s\n", msg) }}
 	if o.maxAhead > 2*replayAheadMargin {
@@ -177,12 +178,12 @@ func runReplay(ctx context.Context, o *replayOptions, fs *pflag.FlagSet, args []
 		// A whole number of minutes, so that windows that divide a minute
 		// (the site file's 1 s and 10 s) line up with the log's as they
 		// did: a fractional shift splits every window in two.
-		set.Shift = math.Floor((float64(time.Now().UnixNano())/1e9-batches[0].Time[0])/60) * 60
+		set.Shift = math.Floor((float64(time.Now().UnixNano())/1e9-first)/60) * 60
 	}
-	if t0 := batches[0].Time[0] + set.Shift; t0 < minReplayTime {
+	if t0 := first + set.Shift; t0 < minReplayTime {
 		return fmt.Errorf("%s: the first time, %.3f s, is before 2000-01-01 (Unix seconds): the pipeline refuses such times; make the log start now with --now, or add seconds with --shift", args[0], t0)
 	}
-	if t1 := batches[len(batches)-1].Time[len(batches[len(batches)-1].Time)-1] + set.Shift; t1 > maxReplayTime {
+	if t1 := last + set.Shift; t1 > maxReplayTime {
 		return fmt.Errorf("%s: the last time, %s s, is after 9999-12-31 (Unix seconds): no clock reaches it; give a --shift that brings the log to the clock's years (--now starts it now)", args[0], strconv.FormatFloat(t1, 'g', 6, 64))
 	}
 	nc, err := broker.Connect(o.broker, "undercurrent replay", broker.Auth{User: o.user, Password: o.password, Token: o.token, UserFrom: "--user",
@@ -201,7 +202,10 @@ func runReplay(ctx context.Context, o *replayOptions, fs *pflag.FlagSet, args []
 	if err := checkAssetServed(ctx, js, o.asset); err != nil {
 		return err
 	}
-	st, err := broker.Replay(ctx, js, batches, set)
+	bar, done := batchProgress(stderr, "replaying")
+	set.Progress = bar
+	st, err := broker.ReplayFrom(ctx, js, src, set)
+	done()
 	var stopped *broker.StoppedError
 	if errors.As(err, &stopped) {
 		// Interrupted: say what is stored and how to send the rest, as
@@ -213,6 +217,10 @@ func runReplay(ctx context.Context, o *replayOptions, fs *pflag.FlagSet, args []
 	}
 	if o.resume {
 		fmt.Fprintf(stdout, "skipped %d batches the broker already held (--resume)\n", st.Resumed)
+		if st.Batches == 0 {
+			fmt.Fprintf(stdout, "nothing left to send for asset %s: the broker holds every batch of the log\n", o.asset)
+			return nil
+		}
 	}
 	fmt.Fprintf(stdout, "replayed %d samples in %d batches for asset %s, sensors %v, times %.3f to %.3f (%d already stored)\n",
 		st.Samples, st.Batches, o.asset, st.Sensors, st.From, st.To, st.Duplicates)
@@ -283,6 +291,65 @@ func checkAssetServed(ctx context.Context, js jetstream.JetStream, asset string)
 // replayAheadMargin keeps replayed times this far inside --max-ahead, for
 // the time a batch takes to reach the broker and for clocks a little apart.
 const replayAheadMargin = time.Minute
+
+// replayLog reads the log for sending: its batches' source, the first
+// time of its first batch to send and its last time, and a function that
+// stops the source's read. Its warnings go to stdout, and progress to a
+// terminal's stderr. A log read with --time-order any is read whole into
+// memory (replayBatches), to be put in time order; any other log is read
+// twice (scanReplay, replaySource), to be sent in bounded memory.
+func replayLog(ctx context.Context, o *replayOptions, fs *pflag.FlagSet, path string, stdout, stderr io.Writer) (*broker.ReplaySource, float64, float64, func(), error) {
+	if fs != nil && fs.Changed("time-order") {
+		if order, _ := ingest.ParseTimeOrder(o.read.timeOrder); order == ingest.TimeAnyOrder {
+			batches, warns, err := replayBatches(ctx, o, fs, path)
+			if err != nil {
+				return nil, 0, 0, nil, err
+			}
+			for _, w := range warns {
+				fmt.Fprintf(stdout, "warning: %s\n", w)
+			}
+			if err := checkBatchBytes(path, batches, o.format, o.maxBytes, o.batch); err != nil {
+				return nil, 0, 0, nil, err
+			}
+			last := batches[len(batches)-1]
+			return broker.SliceSource(batches), batches[0].Time[0], last.Time[len(last.Time)-1], func() {}, nil
+		}
+	}
+	opts, err := o.read.options(fs)
+	if err != nil {
+		return nil, 0, 0, nil, err
+	}
+	if err := o.read.checkIAGA("LOG", path); err != nil {
+		return nil, 0, 0, nil, err
+	}
+	if fs == nil || !fs.Changed("time-order") {
+		opts = append(opts, ingest.WithTimeOrder(ingest.TimeOrderedPerGroup))
+	}
+	progress, done := rowProgress(stderr, "checking")
+	sc, err := o.scanReplay(ctx, path, append(opts[:len(opts):len(opts)], progress), nil, 0)
+	done()
+	if err != nil {
+		return nil, 0, 0, nil, err
+	}
+	for _, w := range sc.read.warns {
+		fmt.Fprintf(stdout, "warning: %s\n", w)
+	}
+	if sc.over > 0 {
+		fmt.Fprintf(stdout, "warning: %s\n", fieldOverText(path, sc.over, sc.overBatches, sc.firstOver))
+	}
+	largest := make([]*broker.Batch, 0, len(sc.largest))
+	for _, name := range sc.sensors {
+		largest = append(largest, sc.largest[name])
+	}
+	if err := checkBatchBytes(path, largest, o.format, o.maxBytes, o.batch); err != nil {
+		return nil, 0, 0, nil, err
+	}
+	src, _, stop, err := o.replaySource(ctx, path, opts, sc)
+	if err != nil {
+		return nil, 0, 0, nil, err
+	}
+	return src, sc.first, sc.last, stop, nil
+}
 
 // replayBatches reads the log and splits it into the sensors' batches.
 //
@@ -360,6 +427,12 @@ func fieldOverWarning(path string, batches []*broker.Batch) string {
 	if n == 0 {
 		return ""
 	}
+	return fieldOverText(path, n, nb, first)
+}
+
+// fieldOverText words fieldOverWarning's warning: n readings above the
+// bound in nb batches, first the first of them.
+func fieldOverText(path string, n, nb int, first string) string {
 	nbText := "1 batch"
 	if nb > 1 {
 		nbText = fmt.Sprintf("%d batches", nb)

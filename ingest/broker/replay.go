@@ -7,7 +7,6 @@ import (
 	"math"
 	"sort"
 	"strconv"
-	"strings"
 	"time"
 
 	"github.com/nats-io/nats.go/jetstream"
@@ -78,47 +77,33 @@ func SplitSamples(s *ingest.Samples, asset, sensor string, dur float64, opts ...
 		// keeps the sensors interleaved as they were logged.
 		sort.SliceStable(rows, func(a, b int) bool { return s.Time[rows[a]] < s.Time[rows[b]] })
 	}
-	open := map[string]*Batch{}
-	lastRow := map[string]int{}
-	var out []*Batch
+	var temp float64
+	z, err := NewBatcher(s.Source, asset, dur, math.Inf(1), s.Temp != nil)
+	if err != nil {
+		return nil, err
+	}
 	for _, i := range rows {
-		name := sensorOf(i)
-		t, bx, by, bz := s.Time[i], s.Bx[i], s.By[i], s.Bz[i]
-		b := open[name]
-		if b != nil {
-			prev := b.Time[len(b.Time)-1]
-			switch {
-			case t == prev:
-				return nil, fmt.Errorf("%s: row %d of the log: column time: sensor %q reads twice at %s (row %d of the log has the same time): a sensor cannot read twice at one instant", s.Source, i+1, name, timeText(t), lastRow[name]+1)
-			case t < prev:
-				return nil, fmt.Errorf("%s: row %d of the log: column time: time goes backwards for sensor %q: %s after %s (row %d of the log); if the rows may come in any order, allow it (on the command line --time-order any) and they are sent sorted by time", s.Source, i+1, name, timeText(t), timeText(prev), lastRow[name]+1)
-			}
+		if s.Temp != nil {
+			temp = s.Temp[i]
 		}
-		lastRow[name] = i
-		if b == nil || t-b.Time[0] >= dur {
-			if err := ValidToken(name); err != nil {
-				return nil, fmt.Errorf("%s: row %d of the log: column group: %s", s.Source, i+1, strings.TrimPrefix(err.Error(), "broker: "))
-			}
-			b = &Batch{Asset: asset, Sensor: name}
-			if s.Temp != nil {
-				b.Temp = []float64{}
-			}
-			open[name] = b
-			out = append(out, b)
+		if err := z.Add(i, sensorOf(i), s.Time[i], s.Bx[i], s.By[i], s.Bz[i], temp); err != nil {
+			return nil, err
 		}
-		b.Time = append(b.Time, t)
-		b.Bx, b.By, b.Bz = append(b.Bx, bx), append(b.By, by), append(b.Bz, bz)
-		if b.Temp != nil {
-			b.Temp = append(b.Temp, s.Temp[i])
-		}
+	}
+	z.Flush()
+	// Sent in the order the data would have arrived: by last sample time.
+	var out []*Batch
+	for b := z.Next(); b != nil; b = z.Next() {
+		out = append(out, b)
 	}
 	if len(out) == 0 {
 		return nil, fmt.Errorf("%s: no complete rows to replay", s.Source)
 	}
-	// Send in the order the data would have arrived: by last sample time.
-	sort.SliceStable(out, func(i, j int) bool { return out[i].Time[len(out[i].Time)-1] < out[j].Time[len(out[j].Time)-1] })
 	return out, nil
 }
+
+// TimeText is timeText, for the messages of a log's other readers.
+func TimeText(t float64) string { return timeText(t) }
 
 // timeText prints a time in seconds in full (the shortest text that reads
 // back to the same float64), followed by its UTC date and time when it
@@ -203,19 +188,77 @@ func (st *ReplayStats) StoredText(total int) string {
 	return fmt.Sprintf("%d of %d batches were stored, up to time %s", st.Batches, total, timeText(st.To))
 }
 
+// SensorKey names one sensor of an asset.
+type SensorKey struct{ Asset, Sensor string }
+
+// ReplaySource gives ReplayFrom its batches one at a time, in the order
+// to send them (each sensor's in time order), so that a long log is sent
+// without holding it whole (see Batcher).
+type ReplaySource struct {
+	// Total is the number of batches Next gives.
+	Total int
+	// Sensors names the sensor of every batch, each once (for Resume).
+	Sensors []SensorKey
+	// Next returns the next batch, or nil after the last.
+	Next func() (*Batch, error)
+	// Resumed, for Resume, counts the batches of Next whose last time
+	// plus shift is at most held[sensor] (the sensors missing from held,
+	// none), so that Replay can tell how many it has to send. Nil: read
+	// the batches for it (a source that can give them only once needs it).
+	Resumed func(held map[string]float64, shift float64) (int, error)
+}
+
+// SliceSource is a ReplaySource over batches held in memory, in the order
+// given.
+func SliceSource(batches []*Batch) *ReplaySource {
+	src := &ReplaySource{Total: len(batches)}
+	seen := map[SensorKey]bool{}
+	for _, b := range batches {
+		if k := (SensorKey{b.Asset, b.Sensor}); !seen[k] {
+			seen[k] = true
+			src.Sensors = append(src.Sensors, k)
+		}
+	}
+	next := 0
+	src.Next = func() (*Batch, error) {
+		if next == len(batches) {
+			return nil, nil
+		}
+		next++
+		return batches[next-1], nil
+	}
+	src.Resumed = func(held map[string]float64, shift float64) (int, error) {
+		n := 0
+		for _, b := range batches {
+			if h, ok := held[b.Sensor]; ok && b.Time[len(b.Time)-1]+shift <= h {
+				n++
+			}
+		}
+		return n, nil
+	}
+	return src
+}
+
 // Replay publishes batches through JetStream as live sensor messages,
 // paced by set.Speed, waiting for each acknowledgement. When ctx ends it
-// stops and returns a *StoppedError.
-func Replay(ctx context.Context, js jetstream.JetStream, batches []*Batch, set *ReplaySettings) (st *ReplayStats, err error) {
+// stops and returns a *StoppedError. See ReplayFrom for a log too long to
+// hold.
+func Replay(ctx context.Context, js jetstream.JetStream, batches []*Batch, set *ReplaySettings) (*ReplayStats, error) {
+	return ReplayFrom(ctx, js, SliceSource(batches), set)
+}
+
+// ReplayFrom is Replay taking the batches one at a time from src: it holds
+// one batch at a time itself.
+func ReplayFrom(ctx context.Context, js jetstream.JetStream, src *ReplaySource, set *ReplaySettings) (st *ReplayStats, err error) {
 	var rs ReplaySettings
 	if set != nil {
 		rs = *set
 	}
 	st = &ReplayStats{From: math.Inf(1), To: math.Inf(-1)}
-	if len(batches) == 0 {
+	total := src.Total
+	if total == 0 {
 		return st, nil
 	}
-	total := len(batches)
 	defer func() {
 		if cerr := ctx.Err(); err != nil && cerr != nil {
 			err = &StoppedError{Err: cerr, Stored: st.StoredText(total)}
@@ -224,29 +267,48 @@ func Replay(ctx context.Context, js jetstream.JetStream, batches []*Batch, set *
 	var held map[string]float64
 	if rs.Resume {
 		var err error
-		if held, err = storedUpTo(ctx, js, batches); err != nil {
+		if held, err = storedUpTo(ctx, js, src.Sensors); err != nil {
 			return st, err
 		}
-		var rest []*Batch
-		for _, b := range batches {
-			if h, ok := held[b.Sensor]; ok && b.Time[len(b.Time)-1]+rs.Shift <= h {
-				st.Resumed++
-				continue
-			}
-			rest = append(rest, b)
+		stored := false
+		for _, h := range held {
+			stored = stored || !math.IsInf(h, -1)
 		}
-		batches = rest
-		total = len(batches)
-		if len(batches) == 0 {
-			return st, nil
+		if stored {
+			if src.Resumed == nil {
+				return st, errors.New("broker: replay --resume: the source cannot count the batches stored")
+			}
+			skip, err := src.Resumed(held, rs.Shift)
+			if err != nil {
+				return st, err
+			}
+			total -= skip
+			if total <= 0 {
+				st.Resumed = skip
+				return st, nil
+			}
 		}
 	}
 	seen := map[string]bool{}
 	toldHold := false
-	wall0 := time.Now()
-	data0 := batches[0].Time[len(batches[0].Time)-1]
-	for i, b := range batches {
+	var wall0 time.Time
+	var data0 float64
+	for i := 0; ; {
+		b, err := src.Next()
+		if err != nil {
+			return st, err
+		}
+		if b == nil {
+			break
+		}
 		last := b.Time[len(b.Time)-1]
+		if h, ok := held[b.Sensor]; ok && last+rs.Shift <= h {
+			st.Resumed++
+			continue
+		}
+		if i == 0 {
+			wall0, data0 = time.Now(), last
+		}
 		if rs.Speed > 0 {
 			due := wall0.Add(secondsDuration((last - data0) / rs.Speed))
 			if d := time.Until(due); d > 0 {
@@ -265,7 +327,7 @@ func Replay(ctx context.Context, js jetstream.JetStream, batches []*Batch, set *
 				if !toldHold && d >= holdNoticeAfter && rs.Notify != nil {
 					// Said once: a log shifted ahead of the clock
 					// would otherwise wait without a word.
-					rs.Notify(holdNotice(now, ahead-rs.MaxAhead.Seconds(), i, len(batches)))
+					rs.Notify(holdNotice(now, ahead-rs.MaxAhead.Seconds(), i, total))
 					toldHold = true
 				}
 				select {
@@ -287,13 +349,13 @@ func Replay(ctx context.Context, js jetstream.JetStream, batches []*Batch, set *
 		told := false
 		ack, err := publishBatch(ctx, js, send, rs.Encoding, rs.Mark, func(err error) {
 			if !told && rs.Notify != nil {
-				rs.Notify(fmt.Sprintf("no acknowledgement from the broker for batch %d of %d (%v); trying again for up to %v", i+1, len(batches), err, publishRetryFor))
+				rs.Notify(fmt.Sprintf("no acknowledgement from the broker for batch %d of %d (%v); trying again for up to %v", i+1, total, err, publishRetryFor))
 				told = true
 			}
 		})
 		if err != nil {
 			if ctx.Err() == nil && publishRetryable(err) {
-				err = fmt.Errorf("%w: the broker stopped answering (no acknowledgement in %v); %s; to send the rest once the broker is back, run the same replay again with --resume, which skips each sensor's batches up to the last sample the broker holds for it (without --resume, batches stored already are not stored twice only within the broker's two-minute duplicate window; later they are stored again and the pipeline refuses them as late, into its dead letters)", err, publishRetryFor, st.StoredText(len(batches)))
+				err = fmt.Errorf("%w: the broker stopped answering (no acknowledgement in %v); %s; to send the rest once the broker is back, run the same replay again with --resume, which skips each sensor's batches up to the last sample the broker holds for it (without --resume, batches stored already are not stored twice only within the broker's two-minute duplicate window; later they are stored again and the pipeline refuses them as late, into its dead letters)", err, publishRetryFor, st.StoredText(total))
 			}
 			return st, err
 		}
@@ -308,8 +370,9 @@ func Replay(ctx context.Context, js jetstream.JetStream, batches []*Batch, set *
 		}
 		st.From = math.Min(st.From, send.Time[0])
 		st.To = math.Max(st.To, send.Time[len(send.Time)-1])
+		i++
 		if rs.Progress != nil {
-			rs.Progress(i+1, len(batches))
+			rs.Progress(i, total)
 		}
 	}
 	sort.Strings(st.Sensors)
@@ -360,15 +423,15 @@ func secondsDuration(s float64) time.Duration {
 	}
 }
 
-// storedUpTo returns, per sensor of batches, the last sample time of the
+// storedUpTo returns, per sensor, the last sample time of the
 // last batch the data stream holds for it (sensors without one absent).
-func storedUpTo(ctx context.Context, js jetstream.JetStream, batches []*Batch) (map[string]float64, error) {
+func storedUpTo(ctx context.Context, js jetstream.JetStream, sensors []SensorKey) (map[string]float64, error) {
 	ds, err := js.Stream(ctx, StreamData)
 	if err != nil {
 		return nil, fmt.Errorf("broker: replay --resume: data stream: %w", err)
 	}
 	out := map[string]float64{}
-	for _, b := range batches {
+	for _, b := range sensors {
 		if _, ok := out[b.Sensor]; ok {
 			continue
 		}

@@ -1,0 +1,148 @@
+package main
+
+import (
+	"bytes"
+	"context"
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+	"time"
+
+	"github.com/nats-io/nats.go/jetstream"
+
+	"undercurrent/ingest"
+	"undercurrent/ingest/broker"
+)
+
+// writeSensorLog writes an invented log of three sensors at 100 Hz for
+// seconds: in time order (rows interleaved), or each sensor's rows after
+// the other's (blocks).
+func writeSensorLog(t *testing.T, path string, seconds int, blocks bool) {
+	t.Helper()
+	var sb strings.Builder
+	sb.WriteString("time,bx,by,bz,group\n")
+	row := func(k int, g string) {
+		fmt.Fprintf(&sb, "%.2f,%d,-6543.2,45000.1,%s\n", 1796104800+float64(k)/100, 12000+k%97, g)
+	}
+	sensors := []string{"s1", "s2", "s3"}
+	if blocks {
+		for _, g := range sensors {
+			for k := range seconds * 100 {
+				row(k, g)
+			}
+		}
+	} else {
+		for k := range seconds * 100 {
+			for _, g := range sensors {
+				row(k, g)
+			}
+		}
+	}
+	if err := os.WriteFile(path, []byte(sb.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+}
+
+// replay reads a log the way it sends it: checked whole in a first read,
+// then cut into batches in a second read, held only until no later row
+// could come before them. It sends the batches the whole log read into
+// memory and split gives (broker.SplitSamples), in the same order, and
+// for a log in time order holds at once a few batches a sensor however
+// long the log: 0.1 s batches of three sensors, for 20 s and 200 s.
+// Before, the whole log's batches were held until sent (600 and 6000).
+func TestReplayStreamsInBoundedBatches(t *testing.T) {
+	dir := t.TempDir()
+	ctx := context.Background()
+	for _, tc := range []struct {
+		seconds int
+		blocks  bool
+	}{{20, false}, {200, false}, {20, true}} {
+		path := filepath.Join(dir, fmt.Sprintf("log-%d-%v.csv", tc.seconds, tc.blocks))
+		writeSensorLog(t, path, tc.seconds, tc.blocks)
+		s, err := ingest.ReadSamples(path, ingest.WithTimeOrder(ingest.TimeOrderedPerGroup))
+		if err != nil {
+			t.Fatal(err)
+		}
+		want, err := broker.SplitSamples(s, "fenwick-lane", "", 0.1)
+		if err != nil {
+			t.Fatal(err)
+		}
+		o := &replayOptions{asset: "fenwick-lane", batch: 100 * time.Millisecond}
+		src, first, last, stop, err := replayLog(ctx, o, nil, path, io.Discard, io.Discard)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if src.Total != len(want) || first != want[0].Time[0] || last != s.Time[s.Len()-1] {
+			t.Errorf("%s: %d batches from %v to %v, want %d from %v to %v", path, src.Total, first, last, len(want), want[0].Time[0], s.Time[s.Len()-1])
+		}
+		// The Batcher of a second source over the log, to count what it
+		// holds.
+		sc, err := o.scanReplay(ctx, path, []ingest.Option{ingest.WithTimeOrder(ingest.TimeOrderedPerGroup)}, nil, 0)
+		if err != nil {
+			t.Fatal(err)
+		}
+		src2, z, stop2, err := o.replaySource(ctx, path, []ingest.Option{ingest.WithTimeOrder(ingest.TimeOrderedPerGroup)}, sc)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for i := 0; ; i++ {
+			b, err := src.Next()
+			if err != nil {
+				t.Fatal(err)
+			}
+			b2, err := src2.Next()
+			if err != nil {
+				t.Fatal(err)
+			}
+			if b == nil || b2 == nil {
+				if b != nil || b2 != nil || i != len(want) {
+					t.Fatalf("%s: %d batches, want %d", path, i, len(want))
+				}
+				break
+			}
+			if i >= len(want) || b.Sensor != want[i].Sensor || fmt.Sprint(b.Time, b.Bx) != fmt.Sprint(want[i].Time, want[i].Bx) || fmt.Sprint(b2.Time) != fmt.Sprint(b.Time) {
+				t.Fatalf("%s: batch %d differs from the whole log's split", path, i)
+			}
+		}
+		stop()
+		stop2()
+		if !tc.blocks && z.MaxHeld() > 2*3+1 {
+			t.Errorf("%s (time order, %d s): held %d batches at once, want at most 7 for any length", path, tc.seconds, z.MaxHeld())
+		}
+	}
+}
+
+// replay --resume with nothing left to send says so, instead of sensors []
+// and times +Inf to -Inf.
+func TestReplayResumeNothingLeft(t *testing.T) {
+	if testing.Short() {
+		t.Skip("starts a broker")
+	}
+	dir, srv, _ := startSimBroker(t)
+	log := filepath.Join(dir, "log.csv")
+	writeSensorLog(t, log, 2, false)
+	nc, err := broker.Connect(srv.ClientURL(), "test", broker.Auth{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer nc.Close()
+	js, _ := jetstream.New(nc)
+	setup, cancel := context.WithTimeout(context.Background(), 30*time.Second)
+	defer cancel()
+	if _, err := broker.Setup(setup, js, broker.StreamSettings{Memory: true}); err != nil {
+		t.Fatal(err)
+	}
+	args := []string{"replay", log, "--asset", "fenwick-lane", "--broker", srv.ClientURL(), "--speed", "0"}
+	for i, want := range []string{"replayed 600 samples in ", "nothing left to send for asset fenwick-lane"} {
+		var out, errOut bytes.Buffer
+		if i == 1 {
+			args = append(args, "--resume")
+		}
+		if code := run(setup, args, &out, &errOut); code != 0 || !strings.Contains(out.String(), want) || strings.Contains(out.String(), "Inf") {
+			t.Fatalf("run %d: exit %d, stdout %q, stderr %q; want %q", i+1, code, out.String(), errOut.String(), want)
+		}
+	}
+}
