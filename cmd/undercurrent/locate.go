@@ -2906,11 +2906,22 @@ func stageDir(ctx context.Context, dir string, keep []string, fill func(tmp stri
 		syncDir(parent)
 		return nil
 	}
-	// Replace an earlier result: move it aside, move the new one in, and
-	// only then delete the old one.
+	// Replace an earlier result.
 	if err := checkOutDir(dir, keep); err != nil {
 		return err
 	}
+	// Where the system can, the two swap names in one step, and tmp
+	// then holds the earlier results (dirswap_linux.go).
+	if swapped, err := swapDirs(tmp, dir); err != nil {
+		return err
+	} else if swapped {
+		syncDir(parent)
+		return os.RemoveAll(tmp)
+	}
+	// Elsewhere: move the earlier one aside, move the new one in, and
+	// only then delete the old one. A run killed between the two renames
+	// leaves dir missing and the earlier results in .NAME.old-DIGITS,
+	// which the next run puts back (restoreOldDirs).
 	old, err := os.MkdirTemp(parent, "."+filepath.Base(dir)+".old-")
 	if err != nil {
 		return err
