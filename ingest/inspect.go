@@ -55,7 +55,10 @@ type TimeStats struct {
 	GapsAtLeast bool    `json:"gaps_at_least,omitempty"` // Gaps is a lower bound
 	Largest     []Gap   `json:"largest_gaps"`
 	Backwards   int     `json:"backwards"`
-	Repeated    int     `json:"repeated"`
+	// Repeated counts the rows whose time is that of an earlier row of
+	// the same group at that time stamp (with a group column: sensors
+	// logged on shared stamps repeat nothing), else of the row before.
+	Repeated int `json:"repeated"`
 	// Quantum describes stamps quantised to a resolution coarser than the
 	// sampling (RetimeQuantised, from the first rows kept for the median);
 	// nil when they are not. When they fit a steady sampling, Interval and
@@ -141,8 +144,26 @@ func Inspect(path string, opts ...Option) (*Inspection, error) {
 		}
 	}
 	var vecs [][3]float64 // the field vectors of mags, for guessUnits
+	// Repeats are counted per group: the groups read at the current time
+	// stamp (prev), which only rows sharing that stamp add to.
+	stamp := map[string]bool{}
+	same := 0 // steps of zero from one row to the next, whatever the group
 	for r.Next() {
 		rec := r.RecordBatch()
+		var groupAt func(k int) string
+		if gIdx >= 0 {
+			gc := rec.Column(gIdx)
+			gs, _ := gc.(*array.String)
+			groupAt = func(k int) string {
+				switch {
+				case gc.IsNull(k):
+					return ""
+				case gs != nil:
+					return gs.Value(k)
+				}
+				return gc.ValueStr(k)
+			}
+		}
 		cols := make([][]float64, n)
 		for i, c := range pl.out {
 			if c == cGroup {
@@ -177,13 +198,27 @@ func Inspect(path string, opts ...Option) (*Inspection, error) {
 				}
 				continue
 			}
+			if math.IsNaN(prev) || t != prev {
+				clear(stamp)
+			}
+			if groupAt != nil {
+				// The group's string aliases the batch: cloned to be kept.
+				if g := groupAt(k); !stamp[g] {
+					stamp[strings.Clone(g)] = true
+				} else {
+					in.Time.Repeated++
+				}
+			}
 			if !math.IsNaN(prev) {
 				d := t - prev
 				switch {
 				case d < 0:
 					in.Time.Backwards++
 				case d == 0:
-					in.Time.Repeated++
+					same++
+					if groupAt == nil {
+						in.Time.Repeated++
+					}
 				default:
 					if len(steps) < keepSteps {
 						steps = append(steps, d)
@@ -203,12 +238,7 @@ func Inspect(path string, opts ...Option) (*Inspection, error) {
 				if gIdx >= 0 {
 					// Sensors interleaved on shared stamps are each
 					// sampled on their own (RetimeQuantised by group).
-					gc := rec.Column(gIdx)
-					v := ""
-					if !gc.IsNull(k) {
-						v = gc.ValueStr(k)
-					}
-					groups = append(groups, strings.Clone(v))
+					groups = append(groups, strings.Clone(groupAt(k)))
 				}
 			}
 			if len(mags) < keepSteps {
@@ -269,7 +299,7 @@ func Inspect(path string, opts ...Option) (*Inspection, error) {
 			ts.GapsAtLeast = ts.Gaps == keepGaps
 		}
 	}
-	if row >= 3 && in.Time.Duration == 0 && in.Time.Repeated == row-1 && in.Time.Repeated > 0 {
+	if row >= 3 && in.Time.Duration == 0 && same == row-1 && same > 0 {
 		// Every row one time: the same warning as the other commands'.
 		in.Warnings = append(in.Warnings, oneTimeText(row, in.Time.Start))
 	}

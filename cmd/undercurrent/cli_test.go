@@ -227,6 +227,10 @@ func TestStaleTempsRemoved(t *testing.T) {
 		}
 		return p
 	}
+	// The results that .res.old-77 was the earlier copy of: a
+	// replacement that went through (with res missing, it would be put
+	// back: TestKilledReplaceRestored).
+	mk("res", true, false)
 	gone := []string{
 		mk(".line.csv.tmp3953550841", false, true),
 		mk(".line.csv.tmp12.csv", false, true),

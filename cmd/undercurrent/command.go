@@ -124,7 +124,10 @@ error: a bad flag, flag value or argument, found before any work is done.`
 // under when a run is killed outright (see removeStaleTemps).
 const tempHelp = `A run killed outright (kill -9, a power cut) can leave a hidden
 temporary file or directory (.NAME.tmp..., .NAME.old-...) beside an
-output NAME; the next run writing NAME removes those untouched for an hour.`
+output NAME; the next run writing NAME removes those untouched for an hour.
+A result directory NAME missing beside a .NAME.old-... (a run killed while
+replacing it, where the two are not swapped in one step) is put back from
+it first, with a warning.`
 
 // exitHelp lists the exit statuses.
 const exitHelp = `Exit status: 0 on success; 1 on failure (input that cannot be read or
@@ -242,6 +245,9 @@ func runCommand(ctx context.Context, args []string, stdout, stderr io.Writer) in
 	asJSON := wantsJSON(fs, nil)
 	// Temporary files that a run killed outright (kill -9, a power cut)
 	// left beside this run's outputs are removed once stale.
+	// An earlier result directory that a run killed while replacing it
+	// left hidden is put back first (restoreOldDirs).
+	restoreOldDirs(outputPaths(name, fs, fs.Args()), stderr)
 	removeStaleTemps(outputPaths(name, fs, fs.Args()))
 	if err := checkPipes(name, logPaths(name, fs, fs.Args())); err != nil {
 		fmt.Fprintf(stderr, "undercurrent %s: %v\n", name, err)

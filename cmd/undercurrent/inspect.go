@@ -390,17 +390,32 @@ func inspectOrder(ctx context.Context, path string, opts []ingest.Option, order 
 		byGroup[g] = append(byGroup[g], i)
 	}
 	// Order within each stretch, in file order.
-	var back, repeated, backGroups int
+	var back, backGroups int
 	for _, k := range keys {
 		rows := byGroup[k]
 		for j := 1; j < len(rows); j++ {
-			switch d := times[rows[j]] - times[rows[j-1]]; {
-			case d < 0:
+			if times[rows[j]] < times[rows[j-1]] {
 				back++
-			case d == 0:
-				repeated++
 			}
 		}
+	}
+	// A repeated time is one a row shares with the row before it of its
+	// own group, whatever the order asked for: sensors logged on shared
+	// stamps repeat nothing (as ingest.Inspect counts them).
+	repeated := 0
+	last := map[int32]float64{}
+	for i, t := range times {
+		if math.IsNaN(t) {
+			continue
+		}
+		g := int32(0)
+		if groups != nil {
+			g = groups[i]
+		}
+		if p, ok := last[g]; ok && t == p {
+			repeated++
+		}
+		last[g] = t
 	}
 	if order == ingest.TimeOrderedPerGroup {
 		backGroups = ts.Backwards - back // steps back from one group to the next

@@ -778,6 +778,15 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 	if err := o.coil.load(doc, o.freq); err != nil {
 		return nil, err
 	}
+	opts := append(append([]ingest.Option(nil), o.readOpts...), o.coil.readOptions()...)
+	if o.groupBy != "" && o.groupBy != ingest.ColGroup {
+		opts = append(opts, ingest.WithColumns(ingest.ColGroup+"="+o.groupBy))
+	}
+	// A log without positions (a fixed sensors' record) is refused from
+	// its columns, before it or the base log is read through.
+	if err := checkSurveyPositions(logs, opts); err != nil {
+		return nil, err
+	}
 	var base *ingest.Samples
 	var baseLeftOut []int // base rows left out as spikes
 	if o.base != "" {
@@ -811,10 +820,6 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		}
 		baseLeftOut = spiked
 		sv.baseNoise = newBaseNoise(o.base, base)
-	}
-	opts := append(append([]ingest.Option(nil), o.readOpts...), o.coil.readOptions()...)
-	if o.groupBy != "" && o.groupBy != ingest.ColGroup {
-		opts = append(opts, ingest.WithColumns(ingest.ColGroup+"="+o.groupBy))
 	}
 	sv.logs = logs
 	if sv.geodetic, err = checkOriginFlag(o, logs, opts); err != nil {
@@ -894,12 +899,8 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			}
 		}
 		if s.X == nil || s.Y == nil || s.Z == nil {
-			if isIAGAFile(path) {
-				// An observatory's record holds no positions, and
-				// --column does not apply to it (checkIAGA).
-				return nil, fmt.Errorf("%s has no positions: it is an IAGA-2002 observatory record, which is read as a base station (--base %s), not as a survey log", path, path)
-			}
-			return nil, fmt.Errorf("%s has no positions: locate needs x, y, z (or lat, lon, height) columns; map them with --column", path)
+			// Found from the columns by checkSurveyPositions as a rule.
+			return nil, noPositionsError(path)
 		}
 		if err := checkPositionsRead(path, s); err != nil {
 			return nil, err
@@ -2470,6 +2471,41 @@ func checkOriginFlag(o *locateOptions, logs []string, opts []ingest.Option) (map
 	return nil, usageErrorf("--origin %s places logs with latitude and longitude columns in local metres; %s (x, y are local metres already, about the origin the log names, if any, which the results keep): leave --origin out", flag, what)
 }
 
+// checkSurveyPositions refuses a survey log whose columns (read from its
+// header or schema alone) map no x, y and z: a record of fixed sensors,
+// say, which locate would otherwise read through before finding it has no
+// positions (9 M rows took seconds and over a gigabyte). A log that cannot
+// be opened is left to the read, which says why.
+func checkSurveyPositions(logs []string, opts []ingest.Option) error {
+	for _, path := range logs {
+		// A fixed origin: only the header is looked at (--origin mean
+		// reads the log through).
+		r, err := ingest.Open(path, append(append([]ingest.Option(nil), opts...), ingest.WithOrigin(ingest.Geodetic{}))...)
+		if err != nil {
+			continue
+		}
+		sc := r.Schema()
+		r.Release()
+		if !sc.HasField(ingest.ColX) || !sc.HasField(ingest.ColY) || !sc.HasField(ingest.ColZ) {
+			return noPositionsError(path)
+		}
+	}
+	return nil
+}
+
+// noPositionsError refuses a survey log without positions.
+func noPositionsError(path string) error {
+	if isIAGAFile(path) {
+		// An observatory's record holds no positions, and --column
+		// does not apply to it (checkIAGA).
+		return fmt.Errorf("%s has no positions: it is an IAGA-2002 observatory record, which is read as a base station (--base %s), not as a survey log", path, path)
+	}
+	// A fixed sensors' record names its sensor in the group column
+	// and leaves the positions to the site file (README, "The
+	// continuous pipeline").
+	return fmt.Errorf("%s has no positions: locate needs x, y, z (or lat, lon, height) columns; map them with --column. A record of fixed sensors (one row per sensor and time, its positions in a site file) is not a survey: feed it to \"undercurrent serve\" with \"undercurrent replay\" (README, \"The continuous pipeline\")", path)
+}
+
 // baseSummary says in one line what the base correction did to one log.
 func baseSummary(path string, r *calibrate.BaseReport) string {
 	s := fmt.Sprintf("%s: departures up to %.1f/%.1f/%.1f nT (east/north/up) removed", path, r.MaxAbs[0], r.MaxAbs[1], r.MaxAbs[2])
@@ -2870,11 +2906,22 @@ func stageDir(ctx context.Context, dir string, keep []string, fill func(tmp stri
 		syncDir(parent)
 		return nil
 	}
-	// Replace an earlier result: move it aside, move the new one in, and
-	// only then delete the old one.
+	// Replace an earlier result.
 	if err := checkOutDir(dir, keep); err != nil {
 		return err
 	}
+	// Where the system can, the two swap names in one step, and tmp
+	// then holds the earlier results (dirswap_linux.go).
+	if swapped, err := swapDirs(tmp, dir); err != nil {
+		return err
+	} else if swapped {
+		syncDir(parent)
+		return os.RemoveAll(tmp)
+	}
+	// Elsewhere: move the earlier one aside, move the new one in, and
+	// only then delete the old one. A run killed between the two renames
+	// leaves dir missing and the earlier results in .NAME.old-DIGITS,
+	// which the next run puts back (restoreOldDirs).
 	old, err := os.MkdirTemp(parent, "."+filepath.Base(dir)+".old-")
 	if err != nil {
 		return err
