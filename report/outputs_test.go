@@ -187,7 +187,7 @@ func TestStationScatter(t *testing.T) {
 	// 6-7-8, and across unused 9: 7-8-10 (35, 40, 50 m: 8 departs by
 	// -0.2 A from 2/3 of 7's 15.3 and 1/3 of 10's 15.0, scaled by
 	// sqrt(1 + 4/9 + 1/9)) and 8-10-11 likewise.
-	r.setScatter([][2]float64{{25, 30}})
+	r.setScatter([][2]float64{{25, 30}}, nil)
 	if r.StationScatterCurrent == nil || r.StationScatterDepth == nil {
 		t.Fatal("no scatter")
 	}
@@ -202,12 +202,12 @@ func TestStationScatter(t *testing.T) {
 	}
 	// Too few triples: no scatter; just enough: the scatter.
 	r.Stations = r.Stations[:MinScatterTriples+1]
-	r.setScatter(nil)
+	r.setScatter(nil, nil)
 	if r.StationScatterCurrent != nil || r.StationScatterTriples != 0 {
 		t.Errorf("scatter from %d triples, want none below %d", MinScatterTriples-1, MinScatterTriples)
 	}
 	r.Stations = append(r.Stations, Station{Key: "last", Chainage: 5 * float64(len(r.Stations)), Current: 10.3, Depth: 1.02, Used: true})
-	r.setScatter(nil)
+	r.setScatter(nil, nil)
 	if r.StationScatterCurrent == nil || r.StationScatterTriples != MinScatterTriples {
 		t.Errorf("scatter %v from %d triples, want one from %d", r.StationScatterCurrent, r.StationScatterTriples, MinScatterTriples)
 	}
