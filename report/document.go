@@ -687,6 +687,24 @@ type Station struct {
 	// absent otherwise.
 	CurrentFirstWalk      *float64 `json:"current_first_walk_a,omitempty"`
 	CurrentFirstWalkSigma *float64 `json:"current_first_walk_sigma_a,omitempty"`
+	// RouteCurrentSigma is, on a used station whose current sigma the
+	// route's steps take narrower than the fit gives it (a poor fit whose
+	// sigmas the fit widened for residuals correlated along its readings:
+	// route.Placed.RouteSigma), that sigma, A, at the first walk's level
+	// when CurrentFirstWalk is given; absent otherwise. The least cover's
+	// test of a station against its neighbours (routeCoverDoubt) takes it,
+	// as the route's own neighbour tests do.
+	RouteCurrentSigma *float64 `json:"route_current_sigma_a,omitempty"`
+}
+
+// routeLevelCurrent is levelCurrent with the sigma the route's steps take
+// (RouteCurrentSigma) where it differs from the fit's.
+func (s *Station) routeLevelCurrent() (float64, float64) {
+	v, sigma := s.levelCurrent()
+	if s.RouteCurrentSigma != nil {
+		sigma = *s.RouteCurrentSigma
+	}
+	return v, sigma
 }
 
 // levelCurrent returns s's current and sigma at the first walk's level

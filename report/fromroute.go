@@ -134,6 +134,14 @@ func (d *Document) routeOf(r *route.Route) *Route {
 			v, sig := p.FirstWalkCurrent, p.FirstWalkCurrentSigma
 			s.CurrentFirstWalk, s.CurrentFirstWalkSigma = &v, &sig
 		}
+		// The sigma the route's neighbour tests take, where it is not the
+		// fit's (a poor fit's taken back from its widening).
+		if rs := p.RouteSigma(); s.Used && rs != p.CurrentSigma {
+			if r.FirstWalk != "" {
+				rs = p.FirstWalkRouteSigma
+			}
+			s.RouteCurrentSigma = &rs
+		}
 		out.Stations[i] = s
 	}
 	if r.FirstWalk != "" {
