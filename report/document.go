@@ -12,8 +12,17 @@ import (
 // version 1, which ReadJSON still reads), the name results.csv and
 // route.geojson give it, and a dipole source has no direction, current_a,
 // offset_m, azimuth_deg, dip_deg (nor their sigmas) or span_m, which were
-// written as 0 for it (Source.MarshalJSON).
-const SchemaVersion = 2
+// written as 0 for it (Source.MarshalJSON). Version 3: a route's
+// station_scatter_current_a and station_scatter_depth_m are taken about
+// the straight line through each station's neighbours, from
+// station_scatter_triples runs of three stations (Route.
+// StationScatterCurrent); before, from the differences of successive
+// stations, station_scatter_pairs, which is gone. Some version 2
+// documents, written between the two changes, hold the new spread with
+// station_scatter_triples: ReadJSON keeps a spread given with
+// station_scatter_triples and leaves out one given without it
+// (readScatterV2).
+const SchemaVersion = 3
 
 // Document is the result of one locate run: what was read, how it was
 // corrected, what was fitted per group, the route built from the groups and
