@@ -550,7 +550,8 @@ type Route struct {
 	//	w = (chainage(c) - chainage(b)) / (chainage(c) - chainage(a))
 	//	scatter = 1.4826 * median e
 	//
-	// leaving out triples that straddle a reported current step (for
+	// leaving out triples that straddle a reported current step and
+	// triples that hold a station reported as a current anomaly (for
 	// current and depth alike). The line through the neighbours takes
 	// out the route's own trend (a current falling along a protected
 	// pipe, a conductor deepening), which differences of two stations
@@ -559,8 +560,10 @@ type Route struct {
 	// Sroka & Jennen-Steinmetz, Biometrika 73(3):625-633, 1986); 1.4826
 	// makes the median absolute deviation a consistent estimator of a
 	// normal standard deviation (Rousseeuw & Croux, J. Am. Stat. Assoc.
-	// 88(424):1273-1283, 1993). Nil with fewer than MinScatterTriples
-	// triples. StationScatterTriples is the number of triples used.
+	// 88(424):1273-1283, 1993). Nil on a route of fewer than
+	// MinScatterStations used stations or with fewer than
+	// MinScatterTriples triples. StationScatterTriples is the number of
+	// triples used.
 	StationScatterCurrent *float64 `json:"station_scatter_current_a,omitempty"`
 	StationScatterDepth   *float64 `json:"station_scatter_depth_m,omitempty"`
 	StationScatterTriples int      `json:"station_scatter_triples,omitempty"`

@@ -183,17 +183,33 @@ func phaseless(p *route.Station) bool {
 	return p.AC && p.PairNet && !(math.Abs(p.Current) > currentK(true)*p.CurrentSigma)
 }
 
-// MinScatterTriples is the fewest runs of three successive used stations
+// MinScatterStations and MinScatterTriples are the fewest used stations
+// on a route, and runs of three successive used stations (triples) left
+// after those across a step or holding a current anomaly are left out,
 // from which Route.StationScatterCurrent and StationScatterDepth are
-// given: six stations on a route with no step, as the five pairs of
-// successive stations asked before. Successive departures share stations
-// and are correlated, so the scaled median is rougher than 1.17/sqrt(n)
-// for n independent values (Rousseeuw & Croux, 1993) says: its standard
-// deviation was 0.62 of the true sigma at four triples (0.54 for five
-// pairs) and 0.22 at 39, in a Monte Carlo of 100000 routes of independent
-// normal errors evenly spaced; rough, but far nearer the truth than the
-// fits' own sigmas when the model error dominates.
-const MinScatterTriples = 4
+// given: six stations, as the five pairs of successive stations asked
+// before, and three departures to take a median of. Successive
+// departures share stations and are correlated, so the scaled median is
+// rougher than 1.17/sqrt(n) for n independent values (Rousseeuw & Croux,
+// 1993) says: its standard deviation was 0.74 of the true sigma at three
+// triples (0.68 for three either side of a step), 0.62 at four (0.54 for
+// five pairs) and 0.22 at 39, in a Monte Carlo of independent normal
+// errors evenly spaced (100000 routes; 40000 at three); rough, but far
+// nearer the truth than the fits' own sigmas when the model error
+// dominates. Before, four triples were asked: nine stations with a step
+// bracketed by the third and sixth (open/pair-beside-cable-loss.toml's
+// pair) kept three and gave no spread, where five pairs had given
+// 0.008 A, and eleven stations with two current anomalies kept three
+// (testdata/scenarios/wrenbeck-dive.toml); each side's departures are
+// valid, and they are pooled. A route of five stations, three triples
+// with no step, still gives none: there the three departures span the
+// whole route and a curving track reads as their scatter (a tee's branch
+// followed over five traverses gave 0.10-0.34 A for station errors of
+// about 0.5 A).
+const (
+	MinScatterStations = 6
+	MinScatterTriples  = 3
+)
 
 // madScale turns a median absolute deviation into a normal standard
 // deviation: 1/Phi^-1(0.75).
@@ -217,8 +233,7 @@ const madScale = 1.482602218505602
 // no longer doubted the shallow, anomalous station that gave the least
 // cover (found in review). The route has found such stations already,
 // departing from both neighbours alike; their triples are left out as
-// the triples across a step are (there, at nine seeds, 0.0015-0.05 A,
-// or no spread where fewer than MinScatterTriples are left). An error
+// the triples across a step are (there, at nine seeds, 0.0015-0.05 A). An error
 // the route does not find (a poor fit within its widened sigma, a real
 // bend of depth within two intervals) still counts.
 //
@@ -274,7 +289,7 @@ func (r *Route) setScatter(steps [][2]float64, anomalous map[string]bool) {
 		dI = append(dI, math.Abs(ib-(w*ia+(1-w)*ic))/k)
 		dD = append(dD, math.Abs(b.Depth-(w*a.Depth+(1-w)*c.Depth))/k)
 	}
-	if len(dI) < MinScatterTriples {
+	if len(used) < MinScatterStations || len(dI) < MinScatterTriples {
 		return
 	}
 	ci := madScale * median(dI)
