@@ -12,8 +12,17 @@ import (
 // version 1, which ReadJSON still reads), the name results.csv and
 // route.geojson give it, and a dipole source has no direction, current_a,
 // offset_m, azimuth_deg, dip_deg (nor their sigmas) or span_m, which were
-// written as 0 for it (Source.MarshalJSON).
-const SchemaVersion = 2
+// written as 0 for it (Source.MarshalJSON). Version 3: a route's
+// station_scatter_current_a and station_scatter_depth_m are taken about
+// the straight line through each station's neighbours, from
+// station_scatter_triples runs of three stations (Route.
+// StationScatterCurrent); before, from the differences of successive
+// stations, station_scatter_pairs, which is gone. Some version 2
+// documents, written between the two changes, hold the new spread with
+// station_scatter_triples: ReadJSON keeps a spread given with
+// station_scatter_triples and leaves out one given without it
+// (readScatterV2).
+const SchemaVersion = 3
 
 // Document is the result of one locate run: what was read, how it was
 // corrected, what was fitted per group, the route built from the groups and
@@ -541,7 +550,8 @@ type Route struct {
 	//	w = (chainage(c) - chainage(b)) / (chainage(c) - chainage(a))
 	//	scatter = 1.4826 * median e
 	//
-	// leaving out triples that straddle a reported current step (for
+	// leaving out triples that straddle a reported current step and
+	// triples that hold a station reported as a current anomaly (for
 	// current and depth alike). The line through the neighbours takes
 	// out the route's own trend (a current falling along a protected
 	// pipe, a conductor deepening), which differences of two stations
@@ -550,8 +560,10 @@ type Route struct {
 	// Sroka & Jennen-Steinmetz, Biometrika 73(3):625-633, 1986); 1.4826
 	// makes the median absolute deviation a consistent estimator of a
 	// normal standard deviation (Rousseeuw & Croux, J. Am. Stat. Assoc.
-	// 88(424):1273-1283, 1993). Nil with fewer than MinScatterTriples
-	// triples. StationScatterTriples is the number of triples used.
+	// 88(424):1273-1283, 1993). Nil on a route of fewer than
+	// MinScatterStations used stations or with fewer than
+	// MinScatterTriples triples. StationScatterTriples is the number of
+	// triples used.
 	StationScatterCurrent *float64 `json:"station_scatter_current_a,omitempty"`
 	StationScatterDepth   *float64 `json:"station_scatter_depth_m,omitempty"`
 	StationScatterTriples int      `json:"station_scatter_triples,omitempty"`
@@ -687,6 +699,24 @@ type Station struct {
 	// absent otherwise.
 	CurrentFirstWalk      *float64 `json:"current_first_walk_a,omitempty"`
 	CurrentFirstWalkSigma *float64 `json:"current_first_walk_sigma_a,omitempty"`
+	// RouteCurrentSigma is, on a used station whose current sigma the
+	// route's steps take narrower than the fit gives it (a poor fit whose
+	// sigmas the fit widened for residuals correlated along its readings:
+	// route.Placed.RouteSigma), that sigma, A, at the first walk's level
+	// when CurrentFirstWalk is given; absent otherwise. The least cover's
+	// test of a station against its neighbours (routeCoverDoubt) takes it,
+	// as the route's own neighbour tests do.
+	RouteCurrentSigma *float64 `json:"route_current_sigma_a,omitempty"`
+}
+
+// routeLevelCurrent is levelCurrent with the sigma the route's steps take
+// (RouteCurrentSigma) where it differs from the fit's.
+func (s *Station) routeLevelCurrent() (float64, float64) {
+	v, sigma := s.levelCurrent()
+	if s.RouteCurrentSigma != nil {
+		sigma = *s.RouteCurrentSigma
+	}
+	return v, sigma
 }
 
 // levelCurrent returns s's current and sigma at the first walk's level

@@ -66,7 +66,7 @@ func ExampleWriteJSON() {
 	//     "Treat every conductor as live, whatever current this report estimates.",
 	//     "Local codes, permits and licensed practice prevail over anything in this report."
 	//   ],
-	//   "schema_version": 2,
+	//   "schema_version": 3,
 	//   "tool": {
 	//     "name": "undercurrent",
 	//     "version": "v0.1.0"

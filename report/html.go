@@ -1058,7 +1058,7 @@ func (v *view) summarise() {
 				vsFits = fmt.Sprintf(", %.1f and %.1f times the fits' median ± figures of %s A and %s m",
 					*r.StationScatterCurrent/si, *r.StationScatterDepth/sd, sigText(si), sigText(sd))
 			}
-			v.Scatter = fmt.Sprintf("Realistic spread: stations scatter about the line through their neighbours by %s A in current (%s of the median current) and %s m in depth, one standard deviation of a single station (robust, from %d runs of three successive stations, leaving out current steps)%s; expect a single station's current and depth to be off by up to about that much (the scatter also holds any real change that is not steady over two intervals, such as a bend or a sudden change of depth).",
+			v.Scatter = fmt.Sprintf("Realistic spread: stations scatter about the line through their neighbours by %s A in current (%s of the median current) and %s m in depth, one standard deviation of a single station (robust, from %d runs of three successive stations, leaving out current steps and current anomalies)%s; expect a single station's current and depth to be off by up to about that much (the scatter also holds any real change that is not steady over two intervals, such as a bend or a sudden change of depth).",
 				sigText(*r.StationScatterCurrent), pct(*r.StationScatterCurrent, medianAbsCurrent(r)), sigText(*r.StationScatterDepth), r.StationScatterTriples, vsFits)
 			v.Headline = append(v.Headline, v.Scatter)
 		}

@@ -37,7 +37,8 @@ func WriteJSON(w io.Writer, d *Document) error {
 // versions with added fields still read; a later schema_version is an
 // error, and so is a nil r. A version 1 document's dipole moments,
 // moment_am2 and moment_sigma_am2, are read as Source.Moment and
-// MomentSigma.
+// MomentSigma; a version 1 or 2 document's realistic spread is read only
+// when given with station_scatter_triples (readScatterV2).
 func ReadJSON(r io.Reader, name string) (*Document, error) {
 	if r == nil {
 		return nil, fmt.Errorf("report: %s: no reader (nil)", name)
@@ -50,6 +51,9 @@ func ReadJSON(r io.Reader, name string) (*Document, error) {
 	err = json.Unmarshal(data, &d)
 	if err == nil && d.SchemaVersion == 1 {
 		err = readMomentV1(data, &d)
+	}
+	if err == nil && d.SchemaVersion < 3 {
+		err = readScatterV2(data, &d)
 	}
 	if err != nil {
 		var se *json.SyntaxError
@@ -94,6 +98,44 @@ func readMomentV1(data []byte, d *Document) error {
 				t.Moment, t.MomentSigma = s.Moment, s.MomentSigma
 			}
 		}
+	}
+	return nil
+}
+
+// readScatterV2 leaves out of d, read from a version 1 or 2 document
+// (data), each route's station_scatter_current_a and
+// station_scatter_depth_m that were not given with
+// station_scatter_triples: those were the scatter of the differences of
+// successive stations (with station_scatter_pairs), which holds the
+// route's own trend, and would read in this version as the departures
+// from the neighbours' line that they were not. A spread given with
+// station_scatter_triples, as version 2 documents written after that
+// change give it, is kept.
+func readScatterV2(data []byte, d *Document) error {
+	type route struct {
+		Triples *int `json:"station_scatter_triples"`
+	}
+	var v2 struct {
+		Route      *route `json:"route"`
+		Conductors []struct {
+			Route *route `json:"route"`
+		} `json:"conductors"`
+	}
+	if err := json.Unmarshal(data, &v2); err != nil {
+		return err
+	}
+	drop := func(r *Route, had *route) {
+		if r != nil && (had == nil || had.Triples == nil) {
+			r.StationScatterCurrent, r.StationScatterDepth, r.StationScatterTriples = nil, nil, 0
+		}
+	}
+	drop(d.Route, v2.Route)
+	for i := range d.Conductors {
+		var had *route
+		if i < len(v2.Conductors) {
+			had = v2.Conductors[i].Route
+		}
+		drop(&d.Conductors[i].Route, had)
 	}
 	return nil
 }

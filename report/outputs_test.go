@@ -187,7 +187,7 @@ func TestStationScatter(t *testing.T) {
 	// 6-7-8, and across unused 9: 7-8-10 (35, 40, 50 m: 8 departs by
 	// -0.2 A from 2/3 of 7's 15.3 and 1/3 of 10's 15.0, scaled by
 	// sqrt(1 + 4/9 + 1/9)) and 8-10-11 likewise.
-	r.setScatter([][2]float64{{25, 30}})
+	r.setScatter([][2]float64{{25, 30}}, nil)
 	if r.StationScatterCurrent == nil || r.StationScatterDepth == nil {
 		t.Fatal("no scatter")
 	}
@@ -200,16 +200,42 @@ func TestStationScatter(t *testing.T) {
 	if math.Abs(*r.StationScatterCurrent-wantI) > 1e-4*wantI || math.Abs(*r.StationScatterDepth-wantD) > 1e-4*wantD {
 		t.Errorf("scatter %.6f A, %.6f m; want %.6f A, %.6f m", *r.StationScatterCurrent, *r.StationScatterDepth, wantI, wantD)
 	}
-	// Too few triples: no scatter; just enough: the scatter.
-	r.Stations = r.Stations[:MinScatterTriples+1]
-	r.setScatter(nil)
+	// Too few stations: no scatter; just enough: the scatter. Stations
+	// 0-5 alternate and are 5 m apart (the step is at 6).
+	r.Stations = r.Stations[:MinScatterStations-1]
+	r.setScatter(nil, nil)
 	if r.StationScatterCurrent != nil || r.StationScatterTriples != 0 {
-		t.Errorf("scatter from %d triples, want none below %d", MinScatterTriples-1, MinScatterTriples)
+		t.Errorf("scatter from %d stations, want none below %d", MinScatterStations-1, MinScatterStations)
 	}
 	r.Stations = append(r.Stations, Station{Key: "last", Chainage: 5 * float64(len(r.Stations)), Current: 10.3, Depth: 1.02, Used: true})
-	r.setScatter(nil)
-	if r.StationScatterCurrent == nil || r.StationScatterTriples != MinScatterTriples {
-		t.Errorf("scatter %v from %d triples, want one from %d", r.StationScatterCurrent, r.StationScatterTriples, MinScatterTriples)
+	r.setScatter(nil, nil)
+	if r.StationScatterCurrent == nil || r.StationScatterTriples != MinScatterStations-2 {
+		t.Errorf("scatter %v from %d triples, want one from %d", r.StationScatterCurrent, r.StationScatterTriples, MinScatterStations-2)
+	}
+}
+
+// TestStationScatterBesideStep: nine stations 10 m apart whose currents
+// alternate 0.00 and 0.03 A, then, from the sixth, 3.00 and 3.03 A, with a
+// step bracketed by the third and sixth stations (20-50 m), as
+// open/pair-beside-cable-loss.toml's go-and-return pair gives it: the
+// triples either side of the step are three, T1-T3 and T6-T8, T7-T9, fewer
+// than the four an unbroken run of six stations gives. Before, such a
+// route gave no spread; each side's departures are valid, and the route
+// has as many stations as asked (MinScatterStations), so they are pooled:
+// 1.4826 * 0.03 / sqrt(1.5) A.
+func TestStationScatterBesideStep(t *testing.T) {
+	var r Route
+	for i := range 9 {
+		c := 0.03 * float64(i%2)
+		if i >= 5 {
+			c += 3
+		}
+		r.Stations = append(r.Stations, Station{Key: strconv.Itoa(i + 1), Chainage: 10 * float64(i), Current: c, Depth: 0.8, Used: true})
+	}
+	r.setScatter([][2]float64{{20, 50}}, nil)
+	want := madScale * 0.03 / math.Sqrt(1.5)
+	if r.StationScatterTriples != 3 || r.StationScatterCurrent == nil || math.Abs(*r.StationScatterCurrent-want) > 1e-9 {
+		t.Errorf("spread %s, want %.6f A from 3 triples", scatterText(&r), want)
 	}
 }
 

@@ -66,7 +66,7 @@ func TestStationScatterFollowsTrend(t *testing.T) {
 		if len(steps) != 1 {
 			t.Fatalf("seed %d: %d steps", seed, len(steps))
 		}
-		r.setScatter(steps)
+		r.setScatter(steps, nil)
 		if r.StationScatterCurrent == nil || r.StationScatterDepth == nil {
 			t.Fatalf("seed %d: no scatter (%d triples)", seed, r.StationScatterTriples)
 		}

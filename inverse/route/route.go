@@ -54,6 +54,11 @@ type Placed struct {
 	// sigma carried, A, as the steps take it (walks.go scaleWalks); zero
 	// when Route.FirstWalk is empty.
 	FirstWalkCurrent, FirstWalkCurrentSigma float64
+	// FirstWalkRouteSigma is FirstWalkCurrent's sigma as the route's
+	// steps take it: from RouteSigma rather than the fit's own sigma,
+	// which FirstWalkCurrentSigma carries (zero when Route.FirstWalk is
+	// empty).
+	FirstWalkRouteSigma float64
 }
 
 // Route is the result of Build.
@@ -141,6 +146,7 @@ func Build(stations []Station, set *Settings) (*Route, error) {
 		r.FirstWalk = walkRef(sc.ref, sc.named)
 		for k := range r.Stations {
 			r.Stations[k].FirstWalkCurrent, r.Stations[k].FirstWalkCurrentSigma = pool[k].Current, pool[k].CurrentSigma
+			r.Stations[k].FirstWalkRouteSigma = pool[k].CurrentSigma
 		}
 	}
 	// AC: each later walk's phases referred to the first walk's by one
