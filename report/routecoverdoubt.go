@@ -57,8 +57,21 @@ func routeCoverDoubt(d *Document, r *Route, s Station) string {
 			if r.FirstWalk != "" {
 				level = fmt.Sprintf(", at the level of %s", r.FirstWalk)
 			}
-			why = append(why, fmt.Sprintf("its current, %s A, differs from both neighbours' (%s A at %s, %s A at %s%s) by more than %d times their uncertainties",
-				pm(sv, ss), pm(lv, ls), lo.Key, pm(hv, hs), hi.Key, level, routeAnomalyK))
+			// A poor fit's uncertainty here is the route's, narrower than
+			// the one its row in the table of fits gives: say so, or the
+			// caveat reads against the table.
+			var narrowed []string
+			for _, n := range []Station{s, lo, hi} {
+				if n.RouteCurrentSigma != nil {
+					narrowed = append(narrowed, n.Key)
+				}
+			}
+			route := ""
+			if len(narrowed) > 0 {
+				route = fmt.Sprintf(", taking %s's uncertainty as the route weighs it, without the widening for its misfit that the table of fits gives", keyList(narrowed))
+			}
+			why = append(why, fmt.Sprintf("its current, %s A, differs from both neighbours' (%s A at %s, %s A at %s%s) by more than %d times their uncertainties%s",
+				pm(sv, ss), pm(lv, ls), lo.Key, pm(hv, hs), hi.Key, level, routeAnomalyK, route))
 		}
 	}
 	if len(why) == 0 {

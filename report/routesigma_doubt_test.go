@@ -1,6 +1,7 @@
 package report
 
 import (
+	"strings"
 	"testing"
 )
 
@@ -33,8 +34,14 @@ func TestCoverDoubtTakesRouteSigma(t *testing.T) {
 	if t14 == nil || t14.RouteCurrentSigma == nil || !(*t14.RouteCurrentSigma < t14.CurrentSigma/2) {
 		t.Fatalf("T14 %+v: want a route sigma well under its fit's", t14)
 	}
-	if why := routeCoverDoubt(d, r, lo); why == "" {
+	why := routeCoverDoubt(d, r, lo)
+	if why == "" {
 		t.Errorf("least cover at T15 (%.4f ± %.4f A) given without its caveat; T14 %.4f ± %.4f A (route %.4f A)",
 			lo.Current, lo.CurrentSigma, t14.Current, t14.CurrentSigma, *t14.RouteCurrentSigma)
+	}
+	// The caveat quotes T14 with the route's narrower sigma; it must say
+	// so, or it reads against T14's row in the table of fits.
+	if why != "" && !strings.Contains(why, "taking T14's uncertainty as the route weighs it") {
+		t.Errorf("caveat %q quotes T14's route sigma without saying it is not the table's", why)
 	}
 }
