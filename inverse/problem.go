@@ -36,6 +36,30 @@ type Problem struct {
 	Travel [][3]float64
 }
 
+// Subset returns a problem holding the readings i of p for which keep(i)
+// is true, in their order, with p's Sigma: points, fields or phasors and
+// travels alike (the per-reading slices p gives). The readings' arrays are
+// copied; p is not changed.
+func (p *Problem) Subset(keep func(i int) bool) *Problem {
+	q := &Problem{Sigma: p.Sigma}
+	for i := range p.Points {
+		if !keep(i) {
+			continue
+		}
+		q.Points = append(q.Points, p.Points[i])
+		if p.Fields != nil {
+			q.Fields = append(q.Fields, p.Fields[i])
+		}
+		if p.Phasors != nil {
+			q.Phasors = append(q.Phasors, p.Phasors[i])
+		}
+		if p.Travel != nil {
+			q.Travel = append(q.Travel, p.Travel[i])
+		}
+	}
+	return q
+}
+
 // isAC reports whether the problem carries phasors.
 func (p *Problem) isAC() bool { return p.Phasors != nil }
 

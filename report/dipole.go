@@ -1143,23 +1143,7 @@ func thinReadings(p *inverse.Problem, most int) *inverse.Problem {
 		}
 		keep[hi], keep[lo] = true, true
 	}
-	q := &inverse.Problem{Sigma: p.Sigma}
-	for i, ok := range keep {
-		if !ok {
-			continue
-		}
-		q.Points = append(q.Points, p.Points[i])
-		if p.Fields != nil {
-			q.Fields = append(q.Fields, p.Fields[i])
-		}
-		if p.Phasors != nil {
-			q.Phasors = append(q.Phasors, p.Phasors[i])
-		}
-		if p.Travel != nil {
-			q.Travel = append(q.Travel, p.Travel[i])
-		}
-	}
-	return q
+	return p.Subset(func(i int) bool { return keep[i] })
 }
 
 // coarseNow returns the coarse locator holding l's current lines, or l

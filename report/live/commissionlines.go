@@ -505,19 +505,7 @@ func misfitAt(p *inverse.Problem, src []inverse.Source, rms, limit float64) stri
 	all := rms * rms * float64(m*len(p.Points))
 	best, bestRMS := -1, math.Inf(1)
 	for k := range p.Points {
-		q := &inverse.Problem{Sigma: p.Sigma}
-		for i := range p.Points {
-			if i == k {
-				continue
-			}
-			q.Points = append(q.Points, p.Points[i])
-			if p.Fields != nil {
-				q.Fields = append(q.Fields, p.Fields[i])
-			}
-			if p.Phasors != nil {
-				q.Phasors = append(q.Phasors, p.Phasors[i])
-			}
-		}
+		q := p.Subset(func(i int) bool { return i != k })
 		r, err := inverse.FitStrengths(q, src, nil)
 		if err != nil || r.DOF <= 0 {
 			continue
