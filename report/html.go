@@ -112,6 +112,13 @@ type view struct {
 
 	// PlanShows says what the plan view draws, for its caption.
 	PlanShows planShows
+	// Zoomed is the sentence the plan's caption adds when the plan draws
+	// the traverses too short to see (planZoomed); Insets are then the
+	// places with findings drawn at a larger scale (planInsets), and
+	// InsetsMore says how many more places there are, if any.
+	Zoomed     string
+	Insets     []insetView
+	InsetsMore string
 	// Quadrature is true when the AC profiles are drawn in two parts,
 	// in-phase and quadrature.
 	Quadrature bool
@@ -142,6 +149,12 @@ func planShowsOf(d *Document) planShows {
 	}
 	_, _, ps.Start = routeStart(d)
 	return ps
+}
+
+// insetView is one inset of the plan view: its figure and caption.
+type insetView struct {
+	SVG     template.HTML
+	Caption string
 }
 
 // trackView is the section of the crew report on one further conductor.
@@ -1753,6 +1766,9 @@ func (v *view) plots() error {
 		return fmt.Errorf("report: plan view: %w", err)
 	}
 	v.PlanShows = planShowsOf(d)
+	if err := v.insets(); err != nil {
+		return err
+	}
 	if d.Route != nil && len(d.Route.Stations) > 1 {
 		var err error
 		if v.Current, v.Phase, v.Depth, err = alongPlots(d, d.Route, 0); err != nil {
@@ -1859,6 +1875,58 @@ const (
 	smallAlong   = 7 * vg.Centimeter
 	smallProfile = 6.5 * vg.Centimeter
 )
+
+// insets draws the plan view's insets (planInsets) when the plan draws
+// the traverses too short to see (planZoomed), and words the plan's
+// caption for them.
+func (v *view) insets() error {
+	d := v.D
+	if !planZoomed(d) {
+		return nil
+	}
+	trav := planTraverse(d)
+	ins, morePlaces, more := planInsets(d)
+	v.Zoomed = fmt.Sprintf("At this scale the traverses, about %s m long, are too short to see, and findings close together share one label (1–3 for findings 1, 2 and 3)", roundTenth(trav))
+	if len(ins) > 0 {
+		v.Zoomed += fmt.Sprintf("; below, each place with findings is drawn %s m across, with the readings, the fitted conductor and route, the findings in it and a scale bar", roundTenth(ins[0].frame.side))
+	}
+	v.Zoomed += "."
+	for k, in := range ins {
+		p, err := planInsetPlot(d, in)
+		if err != nil {
+			return fmt.Errorf("report: plan inset %d: %w", k+1, err)
+		}
+		where := "findings " + numberRuns(in.findings)
+		if len(in.findings) == 1 {
+			where = fmt.Sprintf("finding %d", in.findings[0]+1)
+		}
+		if in.ok {
+			where += fmt.Sprintf(" · chainage %.0f–%.0f m", in.chainage[0], in.chainage[1])
+		}
+		s, err := svg(p, insetSide, insetSide, "plan at a larger scale, "+where)
+		if err != nil {
+			return err
+		}
+		v.Insets = append(v.Insets, insetView{SVG: s, Caption: strings.ToUpper(where[:1]) + where[1:]})
+	}
+	if morePlaces > 0 {
+		places, findings, are := "places", "findings", "are"
+		if morePlaces == 1 {
+			places, are = "place", "is"
+		}
+		if len(more) == 1 {
+			findings = "finding"
+		}
+		v.InsetsMore = fmt.Sprintf("%d more %s with findings (%s %s) %s not drawn at a larger scale: the findings table above lists every finding with its chainage.",
+			morePlaces, places, findings, numberRuns(more), are)
+	}
+	return nil
+}
+
+// roundTenth writes v to a tenth, without trailing zeros: "12", "2.5".
+func roundTenth(v float64) string {
+	return strconv.FormatFloat(math.Round(v*10)/10, 'f', -1, 64)
+}
 
 // figure renders the plot build makes at w x h, for wide screens and
 // print, and again at sw x sh (build given true) for a phone's screen,

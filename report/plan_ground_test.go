@@ -228,7 +228,7 @@ func TestPlanLabelsClear(t *testing.T) {
 			// their centre and widens the larger to the side shown.
 			m := ((p.X.Max - p.X.Min) - 1) / 1.08
 			cx, cy := (p.X.Min+p.X.Max)/2, (p.Y.Min+p.Y.Max)/2
-			lay := layOutPlan(d, [2]float64{cx - m/2, cx + m/2}, [2]float64{cy - m/2, cy + m/2}, side)
+			lay := layOutPlan(d, [2]float64{cx - m/2, cx + m/2}, [2]float64{cy - m/2, cy + m/2}, side, false)
 			box := func(l markLabel) ptBox {
 				x, y := l.x/lay.scale+float64(l.offset.X), l.y/lay.scale+float64(l.offset.Y)
 				return ptBox{x, y, x + float64(lay.st.Width(l.text)), y + float64(lay.st.Height(l.text))}

@@ -324,6 +324,12 @@ func polyline(p *plot.Plot, d xy, c color.Color, width vg.Length, dashes ...vg.L
 // that thinning changes nothing the eye can see.
 const planCell = 0.5 // pt
 
+// insetCell is planCell for the plan's insets (planInsetPlot): half a
+// reading's dot, so that the dots along a traverse still overlap into one
+// grey stroke. Half-point cells drew a traverse 12 m long in an inset 40 m
+// across as about 240 dots, 130 kB of SVG an inset.
+const insetCell = 1.2 // pt
+
 // thinToCells keeps one reading (the first) in each planCell-sized cell of a
 // figure side wide, and the readings at the extremes of east and north,
 // so that the plan view's readings grow with the ground they cover, not
@@ -334,6 +340,11 @@ const planCell = 0.5 // pt
 // extent over less than side, so a cell is never wider than planCell on
 // the page.
 func thinToCells(x, y []float64, side vg.Length) (tx, ty []float64) {
+	return thinToCellsBy(x, y, side, planCell)
+}
+
+// thinToCellsBy is thinToCells with cells cell points across.
+func thinToCellsBy(x, y []float64, side vg.Length, cell float64) (tx, ty []float64) {
 	n := len(x)
 	if n < 2 || side <= 0 {
 		return x, y
@@ -342,7 +353,7 @@ func thinToCells(x, y []float64, side vg.Length) (tx, ty []float64) {
 	if !(ext > 0) || math.IsInf(ext, 0) {
 		return x[:1], y[:1]
 	}
-	cell := ext * planCell / float64(side.Points())
+	cell = ext * cell / float64(side.Points())
 	x0, y0 := minOf(x), minOf(y)
 	extreme := map[int]bool{}
 	lo, hi, south, north := 0, 0, 0, 0
@@ -376,8 +387,20 @@ func thinToCells(x, y []float64, side vg.Length) (tx, ty []float64) {
 }
 
 // planPlot is the plan view, to be drawn side long square: survey
-// points, the fitted route and conductors, and numbered findings.
+// points, the fitted route and conductors, and numbered findings. On a
+// route much longer than its traverses (planZoomed) findings close
+// together share a label that lists their numbers in runs ("1–3, 5"),
+// and planInsetPlot draws the places with findings again at a larger
+// scale.
 func planPlot(d *Document, side vg.Length) (*plot.Plot, error) {
+	return drawPlan(d, side, nil, planZoomed(d))
+}
+
+// drawPlan draws the plan view side long square: the whole survey when
+// frame is nil, else only the square frame of it (an inset, without a
+// legend, with a scale bar). ranges is planPlot's: findings' shared
+// labels list their numbers in runs.
+func drawPlan(d *Document, side vg.Length, frame *planFrame, ranges bool) (*plot.Plot, error) {
 	p := newPlot("", "east (m)", "north (m)")
 	var sx, sy []float64
 	for _, g := range d.Groups {
@@ -388,7 +411,15 @@ func planPlot(d *Document, side vg.Length) (*plot.Plot, error) {
 			sx, sy = append(sx, q[0]), append(sy, q[1])
 		}
 	}
-	tx, ty := thinToCells(sx, sy, side)
+	tx, ty := sx, sy
+	if frame != nil {
+		tx, ty = frame.keep(sx, sy)
+	}
+	cell := planCell
+	if frame != nil {
+		cell = insetCell
+	}
+	tx, ty = thinToCellsBy(tx, ty, side, cell)
 	s, err := scatter(p, xy{tx, ty}, draw.CircleGlyph{}, colSurvey, 1.2)
 	if err != nil {
 		return nil, err
@@ -416,6 +447,9 @@ func planPlot(d *Document, side vg.Length) (*plot.Plot, error) {
 		}
 		for _, src := range g.Sources {
 			if src.Kind == KindDipole {
+				if frame != nil && !frame.has(src.Point[0], src.Point[1]) {
+					continue
+				}
 				if _, err := scatter(p, xy{[]float64{src.Point[0]}, []float64{src.Point[1]}}, draw.BoxGlyph{}, colInfo, 3.5); err != nil {
 					return nil, err
 				}
@@ -464,7 +498,11 @@ func planPlot(d *Document, side vg.Length) (*plot.Plot, error) {
 				gapNamed = true
 			}
 		}
-		if _, err := scatter(p, rp.used, draw.CircleGlyph{}, colFit, 2.2); err != nil {
+		used := rp.used
+		if frame != nil {
+			used.x, used.y = frame.keep(used.x, used.y)
+		}
+		if _, err := scatter(p, used, draw.CircleGlyph{}, colFit, 2.2); err != nil {
 			return nil, err
 		}
 	}
@@ -484,21 +522,35 @@ func planPlot(d *Document, side vg.Length) (*plot.Plot, error) {
 		if err != nil {
 			return nil, err
 		}
-		s, err := scatter(p, xy{tx, ty}, trackGlyphs[k], colTrack, 2)
+		gx, gy := tx, ty
+		if frame != nil {
+			gx, gy = frame.keep(tx, ty)
+		}
+		s, err := scatter(p, xy{gx, gy}, trackGlyphs[k], colTrack, 2)
 		if err != nil {
 			return nil, err
 		}
-		p.Legend.Add(fmt.Sprintf("conductor %d", t.Number), l, s)
+		if s != nil {
+			p.Legend.Add(fmt.Sprintf("conductor %d", t.Number), l, s)
+		} else {
+			p.Legend.Add(fmt.Sprintf("conductor %d", t.Number), l)
+		}
 	}
-	if at, dir, ok := routeStart(d); ok {
+	if at, dir, ok := routeStart(d); ok && (frame == nil || frame.has(at[0], at[1])) {
 		m := chainageStart{at: at, dir: dir}
 		p.Add(m)
 		p.Legend.Add("chainage 0, increasing along the arrow", m)
 	}
-	if err := addFindingMarks(p, d, side); err != nil {
+	if err := addFindingMarks(p, d, side, frame, ranges); err != nil {
 		return nil, err
 	}
-	squareUp(p)
+	if frame == nil {
+		squareUp(p)
+		return p, nil
+	}
+	p.Legend = plot.NewLegend()
+	frame.axes(p)
+	p.Add(frame.bar())
 	return p, nil
 }
 
@@ -631,29 +683,44 @@ func findingLabels(fs []Finding, scale float64, st text.Style) []markLabel {
 // boxes, points, of the labels and of every finding's mark, which the
 // plan's other labels keep clear of.
 func placeFindingLabels(fs []Finding, scale float64, st text.Style, avoid []ptBox) (labels []markLabel, texts, marks []ptBox) {
+	join := func(idx []int) string {
+		nums := make([]string, len(idx))
+		for k, i := range idx {
+			nums[k] = strconv.Itoa(i + 1)
+		}
+		return strings.Join(nums, ",")
+	}
+	return placeLabelsOf(fs, scale, st, avoid, nil, join)
+}
+
+// placeLabelsOf is placeFindingLabels for the findings for which keep is
+// true (all when it is nil), each label's text join of the indices of its
+// findings (ascending).
+func placeLabelsOf(fs []Finding, scale float64, st text.Style, avoid []ptBox, keep func(*Finding) bool, join func([]int) string) (labels []markLabel, texts, marks []ptBox) {
 	var out []markLabel
-	var nums [][]string
+	var nums [][]int
+	shown := func(f *Finding) bool { return onPlan(f) && (keep == nil || keep(f)) }
 	for i, f := range fs {
-		if !onPlan(&f) {
+		if !shown(&f) {
 			continue
 		}
 		joined := false
 		for k := range out {
 			if math.Hypot(f.Position[0]-out[k].x, f.Position[1]-out[k].y) <= markShare*scale {
-				nums[k] = append(nums[k], strconv.Itoa(i+1))
+				nums[k] = append(nums[k], i)
 				joined = true
 				break
 			}
 		}
 		if !joined {
 			out = append(out, markLabel{x: f.Position[0], y: f.Position[1]})
-			nums = append(nums, []string{strconv.Itoa(i + 1)})
+			nums = append(nums, []int{i})
 		}
 	}
 	pt := func(l markLabel) (float64, float64) { return l.x / scale, l.y / scale }
 	r, g := float64(markRadius), float64(markGap)
 	for _, f := range fs {
-		if !onPlan(&f) {
+		if !shown(&f) {
 			continue
 		}
 		mx, my := f.Position[0]/scale, f.Position[1]/scale
@@ -661,7 +728,7 @@ func placeFindingLabels(fs []Finding, scale float64, st text.Style, avoid []ptBo
 	}
 	var placed []ptBox
 	for k := range out {
-		out[k].text = strings.Join(nums[k], ",")
+		out[k].text = join(nums[k])
 		w, h := float64(st.Width(out[k].text)), float64(st.Height(out[k].text))
 		px, py := pt(out[k])
 		cands := [][2]float64{{r + g, g}, {r + g, -g - h}, {-r - g - w, g}, {-r - g - w, -g - h}}
@@ -1067,7 +1134,10 @@ func wholeRoute(f *Finding) bool { return f.Kind == "attenuation" }
 // labels of findingLabels over them all. It then names chainage 0 beside
 // its mark (chainageStart, which planPlot draws) and the groups
 // (groupLabels), each clear of the findings' marks and labels.
-func addFindingMarks(p *plot.Plot, d *Document, side vg.Length) error {
+//
+// Inside a frame (an inset) it marks only the findings there, and its
+// labels keep clear of the frame's scale bar too.
+func addFindingMarks(p *plot.Plot, d *Document, side vg.Length, frame *planFrame, ranges bool) error {
 	order := make([]int, len(d.Findings))
 	for i := range order {
 		order[i] = i
@@ -1077,14 +1147,19 @@ func addFindingMarks(p *plot.Plot, d *Document, side vg.Length) error {
 	})
 	for _, i := range order {
 		f := d.Findings[i]
-		if !onPlan(&f) {
+		if !onPlan(&f) || frame != nil && !frame.has(f.Position[0], f.Position[1]) {
 			continue
 		}
 		if _, err := scatter(p, xy{[]float64{f.Position[0]}, []float64{f.Position[1]}}, draw.TriangleGlyph{}, severityColour(f.Severity), markRadius); err != nil {
 			return err
 		}
 	}
-	lay := layOutPlan(d, [2]float64{p.X.Min, p.X.Max}, [2]float64{p.Y.Min, p.Y.Max}, side)
+	var lay planLayout
+	if frame == nil {
+		lay = layOutPlan(d, [2]float64{p.X.Min, p.X.Max}, [2]float64{p.Y.Min, p.Y.Max}, side, ranges)
+	} else {
+		lay = frame.layOut(d)
+	}
 	for _, set := range []struct {
 		ls []markLabel
 		st text.Style
@@ -1120,12 +1195,23 @@ type planLayout struct {
 // findings' numbers first (placeFindingLabels, clear of the chainage-0
 // mark where they can be), then "chainage 0" (startLabel), then the
 // groups' names (groupLabels), each clear of those before it.
-func layOutPlan(d *Document, xr, yr [2]float64, side vg.Length) planLayout {
+//
+// ranges is true on a plan drawn zoomed out (planZoomed): findings that
+// share a label are listed in runs, "1–3, 5" for 1,2,3,5.
+func layOutPlan(d *Document, xr, yr [2]float64, side vg.Length, ranges bool) planLayout {
 	// The scale squareUp will give the plan: the larger extent, widened,
 	// and the square it will show, in points.
 	ext := math.Max(xr[1]-xr[0], yr[1]-yr[0])*1.08 + 1
-	scale := ext / float64(side-planMargin)
 	cx, cy := (xr[0]+xr[1])/2, (yr[0]+yr[1])/2
+	return layOutSquare(d, cx, cy, ext, side, nil, nil, ranges)
+}
+
+// layOutSquare is layOutPlan for a plan that shows the square ext metres
+// across centred on (cx, cy), drawn side long: only the findings for
+// which keep is true (all when keep is nil) are labelled, and every label
+// keeps clear of the boxes avoid (points) too.
+func layOutSquare(d *Document, cx, cy, ext float64, side vg.Length, keep func(*Finding) bool, avoid []ptBox, ranges bool) planLayout {
+	scale := ext / float64(side-planMargin)
 	lay := planLayout{
 		scale: scale,
 		area:  ptBox{(cx - ext/2) / scale, (cy - ext/2) / scale, (cx + ext/2) / scale, (cy + ext/2) / scale},
@@ -1139,8 +1225,19 @@ func layOutPlan(d *Document, xr, yr [2]float64, side vg.Length) planLayout {
 		start = startBoxes([2]float64{at[0] / scale, at[1] / scale}, dir)
 	}
 	var texts []ptBox
-	lay.findings, texts, lay.marks = placeFindingLabels(d.Findings, scale, lay.st, start)
+	join := func(idx []int) string {
+		nums := make([]string, len(idx))
+		for k, i := range idx {
+			nums[k] = strconv.Itoa(i + 1)
+		}
+		return strings.Join(nums, ",")
+	}
+	if ranges {
+		join = numberRuns
+	}
+	lay.findings, texts, lay.marks = placeLabelsOf(d.Findings, scale, lay.st, append(start, avoid...), keep, join)
 	lay.marks = append(lay.marks, start...)
+	lay.marks = append(lay.marks, avoid...)
 	if hasStart {
 		first := d.Route.Stations[0].Key
 		var readings [][3]float64

@@ -43,6 +43,10 @@ tr.bad td { color: var(--muted); }
 figure { margin: 1rem 0; break-inside: avoid; page-break-inside: avoid; }
 figcaption { color: var(--muted); font-size: .85rem; margin-top: .2rem; }
 .plan svg { max-width: 34rem !important; }
+/* The plan's insets: places with findings on a long route, two or three
+   to a row, one on a phone. */
+.insets { display: flex; flex-wrap: wrap; gap: 0 1.5rem; }
+.insets figure { flex: 0 1 19rem; margin: .5rem 0; }
 dl { display: grid; grid-template-columns: 14rem 1fr; gap: .25rem 1rem; margin: .5rem 0; font-size: .92rem; }
 dt { font-weight: 600; }
 dd { margin: 0; }
@@ -146,8 +150,10 @@ footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rul
 <section>
 <h2>Plan view</h2>
 <figure class="plan">{{.Plan}}
-<figcaption>Readings (grey){{with .PlanShows}}{{if .Fits}}, fitted conductor{{if .Route}} and route{{end}} (blue){{if .Gap}}, the route dotted past a station whose fit is not used{{end}}{{end}}{{end}}{{if .Tracks}}, further conductors followed along the route (dark grey, each with its own line pattern, named in the legend){{end}}{{if .Findings}}, findings numbered as in the summary (triangles coloured by severity; a finding about the whole route's current, its steady fall, has none){{end}}{{if .Current}}; groups named in grey beside their readings (every few where they crowd){{if .PlanShows.Start}}, and chainage 0 ringed, with an arrow along increasing chainage{{end}}{{end}}.{{with .PlanShows}}{{if .Failed}} {{if .Fits}}No conductor is drawn at a group whose fit failed (no current found, or nothing fitted): its readings alone show where it was{{if .Route}}, and the route is drawn only between groups whose fits are used{{end}}.{{else}}No conductor is drawn: no group's fit found one.{{end}}{{end}}{{end}} Coordinates: {{.FrameText}}.</figcaption>
-</figure>
+<figcaption>Readings (grey){{with .PlanShows}}{{if .Fits}}, fitted conductor{{if .Route}} and route{{end}} (blue){{if .Gap}}, the route dotted past a station whose fit is not used{{end}}{{end}}{{end}}{{if .Tracks}}, further conductors followed along the route (dark grey, each with its own line pattern, named in the legend){{end}}{{if .Findings}}, findings numbered as in the summary (triangles coloured by severity; a finding about the whole route's current, its steady fall, has none){{end}}{{if .Current}}; groups named in grey beside their readings (every few where they crowd){{if .PlanShows.Start}}, and chainage 0 ringed, with an arrow along increasing chainage{{end}}{{end}}.{{with .PlanShows}}{{if .Failed}} {{if .Fits}}No conductor is drawn at a group whose fit failed (no current found, or nothing fitted): its readings alone show where it was{{if .Route}}, and the route is drawn only between groups whose fits are used{{end}}.{{else}}No conductor is drawn: no group's fit found one.{{end}}{{end}}{{end}}{{with .Zoomed}} {{.}}{{end}} Coordinates: {{.FrameText}}.</figcaption>
+</figure>{{with .Insets}}
+<div class="insets">{{range .}}<figure class="inset">{{.SVG}}<figcaption>{{.Caption}}</figcaption></figure>{{end}}</div>{{end}}{{with .InsetsMore}}
+<p class="values">{{.}}</p>{{end}}
 </section>
 
 {{if .Current}}<section>
