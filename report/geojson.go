@@ -105,8 +105,9 @@ const (
 //     moment_a_m2, with its sigma moment_sigma_a_m2, as its dipole-anomaly
 //     finding gives them;
 //   - "finding": one Point per finding at its position (for a shallow-cover
-//     stretch a LineString along its conductor's route over its chainage
-//     range, the stretch where the cover may be short: stretchLine), with kind,
+//     stretch a LineString along its conductor's route, conductor 1's for
+//     a lone line, over its chainage range, the stretch where the cover may
+//     be short: stretchLine), with kind,
 //     severity, chainage range and message, "conductor" (1 for the
 //     route's conductor, the track's number for a further one, as
 //     findings.csv gives it; absent for a lone line), "lone_line": true when it is about a further
@@ -484,15 +485,18 @@ func along(p, dir [3]float64, t float64) [3]float64 {
 
 // stretchLine is the plan line of a shallow-cover finding f that spans
 // stations: its conductor's route through the used stations from
-// f.ChainageFrom to f.ChainageTo (the nearest stations with enough cover
-// either side, route.Finding), the stretch where the cover may be short. A
-// map showed the demo's 20 m of shallow cable as one dot (found in
-// review). Repeats of a station (a route walked again, at its chainage)
-// are drawn once. ok is false for any other finding, a lone line's, one
-// at a single chainage, or when fewer than two stations lie in the range:
-// the finding is then a Point.
+// f.ChainageFrom to f.ChainageTo (the nearest stations either side that
+// bound the shallow run, route.Bracket), the stretch where the cover may
+// be short. A map showed the demo's 20 m of shallow cable as one dot
+// (found in review). A lone line's finding (a go-and-return pair beside
+// conductor 1, a crossing line) is drawn the same way along conductor 1's
+// route, the stretch of it where the shallow line may be met; its
+// Position is still the line's own point. Repeats of a station (a route
+// walked again, at its chainage) are drawn once. ok is false for any
+// other finding, one at a single chainage, or when fewer than two
+// stations lie in the range: the finding is then a Point.
 func (d *Document) stretchLine(f *Finding) (geometry, bool) {
-	if f.Kind != string(route.KindShallowCover) || f.Lone || !(f.ChainageTo > f.ChainageFrom) {
+	if f.Kind != string(route.KindShallowCover) || !(f.ChainageTo > f.ChainageFrom) {
 		return geometry{}, false
 	}
 	n := f.Conductor

@@ -2,6 +2,7 @@ package report
 
 import (
 	"fmt"
+	"math"
 	"strings"
 
 	"undercurrent/inverse"
@@ -82,6 +83,72 @@ func (d *Document) addLoneCover(fits []Fit, r *route.Route, rs *route.Settings, 
 		}
 		return out
 	}
+	lineOf := func(fit, j int) route.Line {
+		s := &fits[fit].Result.Sources[j]
+		return route.Line{Point: s.Point, Dir: s.Dir, Current: s.Current, CurrentSigma: s.CurrentSigma, Depth: s.Depth, DepthSigma: s.DepthSigma, AzimuthSigma: s.AzimuthSigma}
+	}
+	// bracket is the chainage range of the lone line j of fit at station
+	// k, as the route brackets its own shallow runs (route.CoverRuns): to
+	// the nearest usable stations either side whose fits show a lone line
+	// in line with it (lineDistance) with enough cover, or show none,
+	// which bounds the stretch but says nothing of the line's cover there
+	// (the message tells which); stations whose fits show it shallow too
+	// join the run. A repeat of station k at its chainage that does not
+	// show the line bounds nothing. Before, the range was station k's
+	// alone while the route's own findings gave the bracket, two meanings
+	// for one kind (found in review). Nil with one station.
+	bracket := func(k, fit, j int) *route.Bracket {
+		if len(r.Stations) < 2 {
+			return nil
+		}
+		a := -1
+		for i := range lones {
+			if lones[i].station == k && lones[i].src.fit == fit && lones[i].src.source == j {
+				a = i
+			}
+		}
+		const tol = 1e-6 // m: a repeat lies at its station's own chainage
+		marks := make([]route.Mark, len(r.Stations))
+		for s := range r.Stations {
+			q := &r.Stations[s]
+			switch {
+			case s == k:
+				marks[s] = route.MarkShort
+				continue
+			case !q.OK || q.Dipole:
+				continue // route.MarkSkip, as the route's own check
+			}
+			m := route.MarkUnseen
+			for b := range lones {
+				if a < 0 || lones[b].station != s {
+					continue
+				}
+				if _, ok := lineDistance(&lones[a].src, &lones[b].src); !ok {
+					continue
+				}
+				// The shallowest verdict of the lines in line with it.
+				if lm := route.LoneMark(q, lineOf(lones[b].src.fit, lones[b].src.source), rs); m == route.MarkUnseen || lm == route.MarkShort {
+					m = lm
+				}
+			}
+			if m == route.MarkUnseen && math.Abs(q.Chainage-r.Stations[k].Chainage) < tol {
+				m = route.MarkSkip
+			}
+			marks[s] = m
+		}
+		stop := func(i int, unseen bool) route.Stop {
+			return route.Stop{Name: r.Stations[i].Key, Chainage: r.Stations[i].Chainage, Unseen: unseen}
+		}
+		for _, run := range route.CoverRuns(marks) {
+			for _, i := range run.Members {
+				if i == k {
+					b := route.BracketOf(run, stop, marks, "the line")
+					return &b
+				}
+			}
+		}
+		return nil
+	}
 	added := false
 	for k := range r.Stations {
 		p := &r.Stations[k]
@@ -97,7 +164,8 @@ func (d *Document) addLoneCover(fits []Fit, r *route.Route, rs *route.Settings, 
 				// (furtherAboveGround), and no cover is checked.
 				continue
 			}
-			l := route.Line{Point: s.Point, Dir: s.Dir, Current: s.Current, CurrentSigma: s.CurrentSigma, Depth: s.Depth, DepthSigma: s.DepthSigma, AzimuthSigma: s.AzimuthSigma, InLineWith: inLine(k, p.Index, j)}
+			l := lineOf(p.Index, j)
+			l.InLineWith = inLine(k, p.Index, j)
 			if f, ok := route.LoneCover(p, l, rs, len(r.Stations) == 1); ok {
 				nf := findingOf(f)
 				nf.Lone = true
@@ -108,6 +176,10 @@ func (d *Document) addLoneCover(fits []Fit, r *route.Route, rs *route.Settings, 
 					} else {
 						nf.Message += note
 					}
+				}
+				if br := bracket(k, p.Index, j); br != nil {
+					nf.Message += "; " + br.Reach()
+					nf.ChainageFrom, nf.ChainageTo = br.Range()
 				}
 				d.Findings = append(d.Findings, nf)
 				added = true

@@ -22,13 +22,26 @@ import (
 // automatic count, depths below the ground (up = 0). Fixture data, not check
 // values.
 func pairBesideCableFits(t testing.TB, seed uint64, pairDepth float64) []Fit {
+	return pairBesideCableDepthFits(t, seed, []float64{pairDepth, pairDepth, pairDepth, pairDepth, pairDepth, pairDepth, pairDepth})
+}
+
+// pairBesideCableDepthFits is pairBesideCableFits with the pair's depth
+// given per traverse, pairDepths[i] at traverse i (the pair at each
+// traverse an infinite pair at that depth, as each traverse's fit sees
+// only its own stretch), and no pair at a traverse whose depth is not
+// positive: one traverse per depth given. Fixture data.
+func pairBesideCableDepthFits(t testing.TB, seed uint64, pairDepths []float64) []Fit {
 	rng := rand.New(rand.NewPCG(seed, 606))
 	u := [3]float64{0, 1, 0}
 	pairI, cableI := cmplx.Rect(10, 30*math.Pi/180), cmplx.Rect(6, 70*math.Pi/180)
 	z := 0.0
 	var fits []Fit
-	for i := range 7 {
+	for i, pairDepth := range pairDepths {
 		y := 5 * float64(i)
+		pair := complex(1, 0)
+		if pairDepth <= 0 {
+			pair, pairDepth = 0, 1
+		}
 		var prob inverse.Problem
 		for k := -40; k < 40; k++ {
 			r := [3]float64{0.1 * float64(k), y, 0.3}
@@ -37,7 +50,7 @@ func pairBesideCableFits(t testing.TB, seed uint64, pairDepth float64) []Fit {
 			c := lineField([3]float64{2, 0, -1.0}, u, r, 1)
 			var m [3]complex128
 			for j := range m {
-				m[j] = complex((a[j]-b[j])*1e9, 0)*pairI + complex(c[j]*1e9, 0)*cableI +
+				m[j] = complex((a[j]-b[j])*1e9, 0)*pairI*pair + complex(c[j]*1e9, 0)*cableI +
 					complex(2*rng.NormFloat64(), 2*rng.NormFloat64())
 			}
 			prob.Points = append(prob.Points, r)

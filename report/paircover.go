@@ -68,7 +68,14 @@ func (d *Document) sidePairs() []int {
 // pair's centre lies shallower than the minimum by CoverK sigma, a
 // caution when it may, for each run of successive groups (in route
 // order) whose pair does; a group without such a pair, or whose pair is
-// clear, ends a run. The findings are shallow-cover ones marked Lone (no
+// clear, ends a run. Each run's chainage range is bracketed as the
+// route's own runs are (route.CoverRuns, route.Bracket): to the nearest
+// usable groups either side where the pair is seen with enough cover, or
+// where it is not seen beside conductor 1, which bounds the run but says
+// nothing of its cover there (the message tells which). Before, the range
+// was the run's own end groups while the route's findings gave the
+// bracket, two meanings for one kind (found in review). The findings are
+// shallow-cover ones marked Lone (no
 // conductor's track follows the pair), sorted with SortFindings. Before,
 // a balanced 10 A pair at 0.6 m, 2 m from a 6 A cable at 1.0 m, was
 // fitted right on every traverse, yet with a 0.8 m minimum the summary
@@ -85,15 +92,7 @@ func (d *Document) addPairCover(rs *route.Settings) {
 		return p.Depth - rs.SensorHeight, math.Hypot(p.DepthSigma, rs.GroundSigma)
 	}
 	single := len(d.Groups) == 1
-	var run []int
-	warn, added := false, false
-	flush := func() {
-		if len(run) > 0 {
-			d.Findings = append(d.Findings, d.pairCoverFinding(run, warn, single, rs, cover))
-			added = true
-		}
-		run, warn = nil, false
-	}
+	marks := make([]route.Mark, len(d.Groups))
 	for i := range d.Groups {
 		g := &d.Groups[i]
 		if !d.groupUsed(g) || !g.OK {
@@ -101,28 +100,51 @@ func (d *Document) addPairCover(rs *route.Settings) {
 		}
 		p := sidePair(g, true)
 		if p == nil {
-			flush()
+			// Not seen beside conductor 1 (or followed, or conductor 1
+			// itself): that bounds a run, but says nothing of the pair's
+			// cover there.
+			marks[i] = route.MarkUnseen
 			continue
 		}
-		c, sc := cover(p)
-		if c-k*sc >= rs.MinCover {
-			flush()
-			continue
-		}
-		run = append(run, i)
-		if c+k*sc < rs.MinCover {
-			warn = true
+		marks[i] = route.MarkClear
+		if c, sc := cover(p); c-k*sc < rs.MinCover {
+			marks[i] = route.MarkShort
 		}
 	}
-	flush()
-	if added {
+	stop := func(i int, unseen bool) route.Stop {
+		g := &d.Groups[i]
+		s := route.Stop{Name: g.Key, Unseen: unseen}
+		if g.Chainage != nil {
+			s.Chainage = *g.Chainage
+		}
+		return s
+	}
+	runs := route.CoverRuns(marks)
+	for _, r := range runs {
+		warn := false
+		for _, i := range r.Members {
+			if c, sc := cover(d.Groups[i].Pair); c+k*sc < rs.MinCover {
+				warn = true
+			}
+		}
+		var br *route.Bracket
+		if !single && d.Route != nil {
+			b := route.BracketOf(r, stop, marks, "the pair")
+			br = &b
+		}
+		d.Findings = append(d.Findings, d.pairCoverFinding(r.Members, br, warn, single, rs, cover))
+	}
+	if len(runs) > 0 {
 		SortFindings(d.Findings)
 	}
 }
 
 // pairCoverFinding is the shallow-cover finding for the run of groups
-// (indices into d.Groups) whose side pair lies shallower than the minimum.
-func (d *Document) pairCoverFinding(run []int, warn, single bool, rs *route.Settings, cover func(*Pair) (float64, float64)) Finding {
+// (indices into d.Groups) whose side pair lies shallower than the minimum,
+// its chainage range and the message's reach given by br, as the route's
+// own cover check brackets a run (route.Bracket); nil without a route or
+// with one group, when the range is the run's own.
+func (d *Document) pairCoverFinding(run []int, br *route.Bracket, warn, single bool, rs *route.Settings, cover func(*Pair) (float64, float64)) Finding {
 	chain := func(g *Group) float64 {
 		if g.Chainage != nil {
 			return *g.Chainage
@@ -162,6 +184,11 @@ func (d *Document) pairCoverFinding(run []int, warn, single bool, rs *route.Sett
 			what, verdict, minimum, first.Key, chain(first), last.Key, chain(last), at(low), pm(c, sc),
 			pm(low.Pair.CurrentTimesSpacing, low.Pair.CurrentTimesSpacingSigma), PairCoreNote)
 	}
+	from, to := chain(&d.Groups[run[0]]), chain(&d.Groups[run[len(run)-1]])
+	if br != nil {
+		msg += "; " + br.Reach()
+		from, to = br.Range()
+	}
 	keys := make([]string, len(run))
 	for j, i := range run {
 		keys[j] = d.Groups[i].Key
@@ -169,8 +196,8 @@ func (d *Document) pairCoverFinding(run []int, warn, single bool, rs *route.Sett
 	return Finding{
 		Kind:         string(route.KindShallowCover),
 		Severity:     sev,
-		ChainageFrom: chain(&d.Groups[run[0]]),
-		ChainageTo:   chain(&d.Groups[run[len(run)-1]]),
+		ChainageFrom: from,
+		ChainageTo:   to,
 		Position:     low.Pair.Point,
 		Groups:       keys,
 		Message:      msg,

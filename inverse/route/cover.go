@@ -19,41 +19,38 @@ func cover(ps []Placed, set *Settings) []Finding {
 		return nil
 	}
 	k := set.coverK()
-	var out []Finding
-	var run []*Placed
-	var before *Placed // the last usable station with enough cover
-	sev := SeverityCaution
-	flush := func(after *Placed) {
-		if len(run) == 0 {
-			return
-		}
-		out = append(out, coverFinding(run, before, after, sev, set, len(ps) == 1))
-		run, sev = nil, SeverityCaution
-	}
+	marks := make([]Mark, len(ps))
 	for i := range ps {
 		p := &ps[i]
 		if !p.usable() {
 			continue
 		}
-		c, sc := set.cover(p.Depth, p.DepthSigma)
-		if c-k*sc >= set.MinCover {
-			flush(p)
-			before = p
-			continue
-		}
-		run = append(run, p)
-		if c+k*sc < set.MinCover {
-			sev = SeverityWarning
+		marks[i] = MarkClear
+		if c, sc := set.cover(p.Depth, p.DepthSigma); c-k*sc < set.MinCover {
+			marks[i] = MarkShort
 		}
 	}
-	flush(nil)
+	stop := func(i int, unseen bool) Stop {
+		return Stop{Name: label(&ps[i]), Chainage: ps[i].Chainage, Unseen: unseen}
+	}
+	var out []Finding
+	for _, r := range CoverRuns(marks) {
+		run := make([]*Placed, len(r.Members))
+		sev := SeverityCaution
+		for j, i := range r.Members {
+			run[j] = &ps[i]
+			if c, sc := set.cover(ps[i].Depth, ps[i].DepthSigma); c+k*sc < set.MinCover {
+				sev = SeverityWarning
+			}
+		}
+		out = append(out, coverFinding(run, BracketOf(r, stop, marks, ""), sev, set, len(ps) == 1))
+	}
 	return out
 }
 
-// coverFinding is the finding of one run of shallow stations, before and
-// after the nearest usable stations either side with enough cover (nil
-// where there is none).
-func coverFinding(run []*Placed, before, after *Placed, sev Severity, set *Settings, single bool) Finding {
+// coverFinding is the finding of one run of shallow stations, bracketed
+// by br (the nearest usable stations either side with enough cover).
+func coverFinding(run []*Placed, br Bracket, sev Severity, set *Settings, single bool) Finding {
 	low := run[0]
 	for _, p := range run[1:] {
 		if p.Depth < low.Depth {
@@ -89,15 +86,9 @@ func coverFinding(run []*Placed, before, after *Placed, sev Severity, set *Setti
 		}
 	}
 	if !single {
-		msg += "; " + coverReach(run, before, after)
+		msg += "; " + br.Reach()
 	}
-	from, to := run[0].Chainage, run[len(run)-1].Chainage
-	if before != nil {
-		from = before.Chainage
-	}
-	if after != nil {
-		to = after.Chainage
-	}
+	from, to := br.Range()
 	keys := make([]string, len(run))
 	for i, p := range run {
 		keys[i] = p.Key
@@ -115,26 +106,6 @@ func coverFinding(run []*Placed, before, after *Placed, sev Severity, set *Setti
 			{Name: "minimum cover", Value: set.MinCover, Unit: "m"},
 		},
 	}
-}
-
-// coverReach says how far a run of shallow stations may reach: to the
-// nearest stations either side with enough cover, or past the run's end
-// station where no station on that side has enough.
-func coverReach(run []*Placed, before, after *Placed) string {
-	first, last := run[0], run[len(run)-1]
-	name := func(p *Placed) string { return fmt.Sprintf("%s (chainage %.1f m)", label(p), p.Chainage) }
-	switch {
-	case before != nil && after != nil:
-		return fmt.Sprintf("the shallow stretch may reach back to %s and on to %s, the nearest stations either side with enough cover", name(before), name(after))
-	case before != nil:
-		return fmt.Sprintf("the shallow stretch may reach back to %s, the nearest station before it with enough cover, and on past %s, as no station after it has enough cover", name(before), name(last))
-	case after != nil:
-		return fmt.Sprintf("the shallow stretch may reach back past %s, as no station before it has enough cover, and on to %s, the nearest station after it with enough cover", name(first), name(after))
-	}
-	if first == last {
-		return fmt.Sprintf("no other station has enough cover, so the shallow cover may continue past %s either way", name(first))
-	}
-	return fmt.Sprintf("no other station has enough cover, so the shallow cover may continue back past %s and on past %s", name(first), name(last))
 }
 
 // pm formats v ± s as PlusMinus does (s to two significant digits, v to

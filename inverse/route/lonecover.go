@@ -17,18 +17,16 @@ import (
 // Settings.MinCover by CoverK sigma and a caution when it may be, and false
 // when the minimum is not checked, l is weak and steep, or its cover is
 // clear. single is true when the route has one station.
+//
+// The finding's chainage range is p's alone; a caller that knows what the
+// other stations' fits show of l brackets it as the route's runs are
+// (LoneMark, CoverRuns, Bracket).
 func LoneCover(p *Placed, l Line, set *Settings, single bool) (Finding, bool) {
-	if set == nil || set.MinCover <= 0 || !p.usable() || !l.finite() {
+	if LoneMark(p, l, set) != MarkShort {
 		return Finding{}, false
-	}
-	if WeakSteep(p.Current, l.Current, l.dip()) {
-		return Finding{}, false // reported by weakSources
 	}
 	k := set.coverK()
 	c, sc := set.cover(l.Depth, l.DepthSigma)
-	if c-k*sc >= set.MinCover {
-		return Finding{}, false
-	}
 	sev, verdict := SeverityCaution, "may be less than"
 	if c+k*sc < set.MinCover {
 		sev, verdict = SeverityWarning, "is less than"
@@ -75,4 +73,19 @@ func LoneCover(p *Placed, l Line, set *Settings, single bool) (Finding, bool) {
 			{Name: "azimuth", Value: az, Sigma: l.AzimuthSigma, Unit: "deg"},
 		},
 	}, true
+}
+
+// LoneMark is what LoneCover's check makes of l at p: MarkShort when it
+// gives a finding, MarkClear when l's cover is enough, and MarkUnseen when
+// its cover is not checked (no minimum, p not usable, l weak and steep,
+// which weakSources reports, or not a finite line).
+func LoneMark(p *Placed, l Line, set *Settings) Mark {
+	if set == nil || set.MinCover <= 0 || !p.usable() || !l.finite() || WeakSteep(p.Current, l.Current, l.dip()) {
+		return MarkUnseen
+	}
+	c, sc := set.cover(l.Depth, l.DepthSigma)
+	if c-set.coverK()*sc >= set.MinCover {
+		return MarkClear
+	}
+	return MarkShort
 }
