@@ -782,8 +782,17 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 	if o.groupBy != "" && o.groupBy != ingest.ColGroup {
 		opts = append(opts, ingest.WithColumns(ingest.ColGroup+"="+o.groupBy))
 	}
-	// A log without positions (a fixed sensors' record) is refused from
-	// its columns, before it or the base log is read through.
+	// A coil's field columns must be volts (a usage error, from the
+	// header alone); then a log without positions (a fixed sensors'
+	// record) is refused from its columns, before it or the base log is
+	// read through.
+	if o.coil.on() {
+		for _, path := range logs {
+			if err := o.coil.checkLog(path, opts); err != nil {
+				return nil, err
+			}
+		}
+	}
 	if err := checkSurveyPositions(logs, opts); err != nil {
 		return nil, err
 	}
@@ -839,12 +848,6 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 	read := make([]*ingest.Samples, 0, len(logs))
 	clipped := make([]bool, len(logs)) // an AC log with clipped readings left out
 	for k, path := range logs {
-		if o.coil.on() {
-			// A field unit the log gives its own field columns.
-			if err := o.coil.checkLog(path, opts); err != nil {
-				return nil, err
-			}
-		}
 		// A coil log's voltages are not checked against the Earth's field.
 		s, rows, warns, err := o.read.readLogRows(ctx, path, opts, !o.coil.on())
 		sv.warnings = append(sv.warnings, warns...)
