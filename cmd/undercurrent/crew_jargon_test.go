@@ -8,6 +8,8 @@ import (
 	"regexp"
 	"strings"
 	"testing"
+
+	"undercurrent/ingest/ingesttest"
 )
 
 // crewJargon matches the statistician's terms a maintenance crew should
@@ -17,20 +19,6 @@ import (
 // and "sigma" when used bare, not in "one-sigma" or a flag or field name
 // such as --ground-sigma.
 var crewJargon = regexp.MustCompile(`(?i:chi-square|chi2|χ²|criterion|dipole|autocorrelation|lag-1|degrees? of freedom|(?:^|[^-_\w])dof\b|(?:^|[^-_\w])sigmas?\b)|\bAIC\b|\bBIC\b`)
-
-// outsideParentheses is s with every balanced parenthesis (nested ones
-// too) taken out; an unbalanced one is left, so that its words are
-// checked.
-func outsideParentheses(s string) string {
-	inner := regexp.MustCompile(`\([^()]*\)`)
-	for {
-		t := inner.ReplaceAllString(s, "")
-		if t == s {
-			return s
-		}
-		s = t
-	}
-}
 
 // TestCrewFindingsPlainWords runs the demo and checks that what the crew
 // reads of it names no statistics outside parentheses: report.html's
@@ -50,7 +38,7 @@ func TestCrewFindingsPlainWords(t *testing.T) {
 	out := mustCLI(t, "demo", "-o", dir)
 	check := func(where, text string) {
 		t.Helper()
-		if m := crewJargon.FindString(outsideParentheses(text)); m != "" {
+		if m := crewJargon.FindString(ingesttest.OutsideParentheses(text)); m != "" {
 			t.Errorf("%s says %q outside parentheses:\n%s", where, m, text)
 		}
 	}

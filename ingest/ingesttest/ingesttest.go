@@ -1,5 +1,6 @@
 // Package ingesttest helps tests across the project find the repository root
-// and the real observatory files kept outside it.
+// and the real observatory files kept outside it, and check the words of
+// messages (OutsideParentheses).
 //
 // The real IAGA-2002 files live in ../shared/data/iaga2002 as seen from the
 // repository root (the directory holding go.mod). They are INTERMAGNET
@@ -11,6 +12,7 @@ package ingesttest
 import (
 	"os"
 	"path/filepath"
+	"regexp"
 	"testing"
 )
 
@@ -55,4 +57,21 @@ func IAGAFile(t testing.TB, name string) string {
 		t.Skipf("real IAGA-2002 file absent: %v", err)
 	}
 	return p
+}
+
+// innerParentheses matches a parenthesis that holds no other.
+var innerParentheses = regexp.MustCompile(`\([^()]*\)`)
+
+// OutsideParentheses is s with every balanced parenthesis (nested ones
+// too) taken out; an unbalanced one is left, so that its words are
+// checked. Tests of the crew's and operators' messages look for
+// statistics outside parentheses with it.
+func OutsideParentheses(s string) string {
+	for {
+		t := innerParentheses.ReplaceAllString(s, "")
+		if t == s {
+			return s
+		}
+		s = t
+	}
 }

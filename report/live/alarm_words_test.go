@@ -6,8 +6,9 @@ import (
 	"math/rand/v2"
 	"regexp"
 	"strconv"
-	"strings"
 	"testing"
+
+	"undercurrent/ingest/ingesttest"
 )
 
 // operatorJargon matches the statistician's terms an operator should not
@@ -16,19 +17,6 @@ import (
 // words. "sigma" counts when used bare, not in "one-sigma" or a flag or
 // field name such as sigma_scale.
 var operatorJargon = regexp.MustCompile(`(?i:chi-square|chi2|χ²|criterion|autocorrelation|lag-1|degrees? of freedom|(?:^|[^-_\w])dof\b|(?:^|[^-_\w])sigmas?\b)|\bAIC\b|\bBIC\b`)
-
-// outsideParens is s with every balanced parenthesis (nested ones too)
-// taken out; an unbalanced one is left, so that its words are checked.
-func outsideParens(s string) string {
-	inner := regexp.MustCompile(`\([^()]*\)`)
-	for {
-		t := inner.ReplaceAllString(s, "")
-		if t == s {
-			return s
-		}
-		s = t
-	}
-}
 
 // TestAlarmMessagesPlainWords raises the alarms whose messages spoke of
 // chi-square and sigmas as their lead words: a degraded window with the
@@ -42,22 +30,14 @@ func outsideParens(s string) string {
 func TestAlarmMessagesPlainWords(t *testing.T) {
 	check := func(what, msg string) {
 		t.Helper()
-		if m := operatorJargon.FindString(outsideParens(msg)); m != "" {
+		if m := operatorJargon.FindString(ingesttest.OutsideParentheses(msg)); m != "" {
 			t.Errorf("%s: the message says %q outside parentheses:\n%s", what, m, msg)
 		}
 	}
 	factor := regexp.MustCompile(`miss the held geometry by ([0-9.e+]+) times .*\(reduced chi-square ([0-9.e+]+) above`)
 
 	for _, noise := range []string{"0", "0.5"} {
-		a := testSite(t, strings.Replace(barSite, "NOISE", noise, 1)).Asset("harrow-bar")
-		p, err := newProcessor(a, "test")
-		if err != nil {
-			t.Fatal(err)
-		}
-		est, _ := NewInverseEstimator(a.Mode, a.Conductors)
-		p.est, p.names = est, []string{"bar"}
-		w := barWindow(a, 50, 0.5, rand.New(rand.NewPCG(4, 4)))
-		_, alarms := p.solve(w, p.reduce(w))
+		_, alarms := barSolved(t, noise)
 		al, ok := alarmFor(alarms, AlarmDegraded, "")
 		if !ok {
 			t.Fatalf("noise %s: no degraded alarm", noise)

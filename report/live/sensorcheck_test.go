@@ -134,6 +134,22 @@ func TestCleanWindowBlamesNoSensor(t *testing.T) {
 	}
 }
 
+// barSolved solves one window of 50 A in the flat bar (barSite, with the
+// site's noise set to noise, nT; 0.5 nT of noise in the readings, seed
+// 4) and returns its estimate and alarms.
+func barSolved(t *testing.T, noise string) (*Estimate, []Alarm) {
+	t.Helper()
+	a := testSite(t, strings.Replace(barSite, "NOISE", noise, 1)).Asset("harrow-bar")
+	p, err := newProcessor(a, "test")
+	if err != nil {
+		t.Fatal(err)
+	}
+	est, _ := NewInverseEstimator(a.Mode, a.Conductors)
+	p.est, p.names = est, []string{"bar"}
+	w := barWindow(a, 50, 0.5, rand.New(rand.NewPCG(4, 4)))
+	return p.solve(w, p.reduce(w))
+}
+
 // barWindow is a window of kestrelSite-like sensors 0.2-0.5 m from a
 // 100 mm by 10 mm copper bar running north through the origin (its
 // broad face up) carrying cur A: the field summed over 100 by 10
@@ -212,15 +228,7 @@ noise = NOISE
 // sensor (the misfit is the model's, not a sensor's).
 func TestBusbarModelMisfitTold(t *testing.T) {
 	for _, noise := range []string{"0", "0.5"} {
-		a := testSite(t, strings.Replace(barSite, "NOISE", noise, 1)).Asset("harrow-bar")
-		p, err := newProcessor(a, "test")
-		if err != nil {
-			t.Fatal(err)
-		}
-		est, _ := NewInverseEstimator(a.Mode, a.Conductors)
-		p.est, p.names = est, []string{"bar"}
-		w := barWindow(a, 50, 0.5, rand.New(rand.NewPCG(4, 4)))
-		e, alarms := p.solve(w, p.reduce(w))
+		e, alarms := barSolved(t, noise)
 		c := e.Conductors[0]
 		t.Logf("noise %s: %.4f +- %.4f A, quality %s, chi2 %.3g on %d", noise, c.Current, c.CurrentSigma, e.Quality, e.Chi2, e.DOF)
 		if e.Quality != "degraded" {
