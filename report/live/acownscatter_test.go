@@ -96,12 +96,7 @@ func TestACBusbarsJudgedWithoutNoise(t *testing.T) {
 			seeds = 5
 		}
 		for seed := range seeds {
-			p, err := newProcessor(a, "test")
-			if err != nil {
-				t.Fatal(err)
-			}
-			est, _ := NewInverseEstimator(a.Mode, a.Conductors)
-			p.est, p.names = est, []string{"A", "B", "C"}
+			p := solvingProcessor(t, a, []string{"A", "B", "C"})
 			w := threeBarWindow(a, 1796279400, 10, thin, rand.New(rand.NewPCG(seed, 20)))
 			e, alarms := p.solve(w, p.reduce(w))
 			t.Logf("thin %v seed %d: quality %s, chi2 %.3g on %d, B %.2f +- %.2f A", thin, seed, e.Quality, e.Chi2, e.DOF, e.Conductors[1].Current, e.Conductors[1].CurrentSigma)

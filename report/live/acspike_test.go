@@ -39,12 +39,7 @@ func TestACWindowSpikeLeftOut(t *testing.T) {
 		t.Run(tc.name, func(t *testing.T) {
 			a := harrowFen(t).Asset("fenwick-lane")
 			a.Alarms.MaxImbalance, a.Alarms.MaxCurrent, a.Alarms.Step = 1, 0, 0
-			p, _ := newProcessor(a, "test")
-			est, err := NewInverseEstimator(a.Mode, a.Conductors)
-			if err != nil {
-				t.Fatal(err)
-			}
-			p.est, p.names = est, []string{"go", "return"}
+			p := solvingProcessor(t, a, []string{"go", "return"})
 			rng := rand.New(rand.NewPCG(4, 17))
 			truth := []complex128{cmplx.Rect(120, 0.3), cmplx.Rect(120, 0.3+math.Pi)}
 			site := a.Frequency

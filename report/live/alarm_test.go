@@ -46,12 +46,7 @@ func TestAlarms(t *testing.T) {
 				tc.setup(a)
 			}
 			rng := rand.New(rand.NewPCG(9, 9))
-			p, err := newProcessor(a, "test")
-			if err != nil {
-				t.Fatal(err)
-			}
-			est, _ := NewInverseEstimator(a.Mode, a.Conductors)
-			p.est, p.names = est, []string{"go", "return"}
+			p := solvingProcessor(t, a, []string{"go", "return"})
 			w1 := synthWindow(a, tc.first, [3]float64{}, 0, 1000, 500, 2, rng)
 			e1, al1 := p.solve(w1, p.reduce(w1))
 			if tc.want != AlarmDegraded {

@@ -88,12 +88,7 @@ func TestConditionAlarmClearedWhenItEnds(t *testing.T) {
 	a := site.Asset("fenwick-lane")
 	a.Alarms = AlarmConfig{MaxChi2: 25, MaxCurrent: 120}
 	rng := rand.New(rand.NewPCG(16, 9))
-	p, err := newProcessor(a, "test")
-	if err != nil {
-		t.Fatal(err)
-	}
-	est, _ := NewInverseEstimator(a.Mode, a.Conductors)
-	p.est, p.names = est, []string{"go", "return"}
+	p := solvingProcessor(t, a, []string{"go", "return"})
 	var got []Alarm
 	for k, i := range []complex128{100, 130, 131, 132, 133, 100} {
 		w := synthWindow(a, []complex128{i, -i}, [3]float64{}, 0.5*float64(k), 1000, 500, 2, rng)

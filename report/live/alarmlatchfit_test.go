@@ -60,12 +60,7 @@ func TestDegradedFitAlarmedOnce(t *testing.T) {
 	a.Noise = 2
 	a.Alarms = AlarmConfig{MaxChi2: 25}
 	rng := rand.New(rand.NewPCG(17, 3))
-	p, err := newProcessor(a, "test")
-	if err != nil {
-		t.Fatal(err)
-	}
-	est, _ := NewInverseEstimator(a.Mode, a.Conductors)
-	p.est, p.names = est, []string{"go", "return"}
+	p := solvingProcessor(t, a, []string{"go", "return"})
 	noise := []float64{2, 14, 14, 0, 40, 18, 2, 2, 2}
 	var wins []*window
 	for k, n := range noise {
@@ -190,12 +185,7 @@ func TestImplausibleReadingsAlarmedOnce(t *testing.T) {
 	a.Mode, a.Frequency = "dc", 0
 	a.fieldLo, a.fieldHi = defaultEarthField[0], defaultEarthField[1]
 	earth := [3]float64{1520, 17850, -45760}
-	p, err := newProcessor(a, "test")
-	if err != nil {
-		t.Fatal(err)
-	}
-	est, _ := NewInverseEstimator(a.Mode, a.Conductors)
-	p.est, p.names = est, []string{"go", "return"}
+	p := solvingProcessor(t, a, []string{"go", "return"})
 	rng := rand.New(rand.NewPCG(7, 2))
 	var wins []*window
 	for k, scale := range []float64{1000, 1000, 0, 1000, 1} {

@@ -21,12 +21,7 @@ func TestGrowingImbalanceRaisedAgain(t *testing.T) {
 	a := site.Asset("fenwick-lane")
 	a.Alarms = AlarmConfig{MaxChi2: 25, MaxImbalance: 5, Balance: []string{"go", "return"}}
 	rng := rand.New(rand.NewPCG(16, 15))
-	p, err := newProcessor(a, "test")
-	if err != nil {
-		t.Fatal(err)
-	}
-	est, _ := NewInverseEstimator(a.Mode, a.Conductors)
-	p.est, p.names = est, []string{"go", "return"}
+	p := solvingProcessor(t, a, []string{"go", "return"})
 	returns := []complex128{-200, -180, -180, -135, -135, -190, -200}
 	var got []Alarm
 	var ests []*Estimate

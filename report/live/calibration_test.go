@@ -37,12 +37,7 @@ func TestCalibrationFileApplied(t *testing.T) {
 			w.Sensors[si].By[i] += offset[1]
 			w.Sensors[si].Bz[i] += offset[2]
 		}
-		p, err := newProcessor(a, "test")
-		if err != nil {
-			t.Fatal(err)
-		}
-		est, _ := NewInverseEstimator(a.Mode, a.Conductors)
-		p.est, p.names = est, []string{"go", "return"}
+		p := solvingProcessor(t, a, []string{"go", "return"})
 		e, _ := p.solve(w, p.reduce(w))
 		return e
 	}

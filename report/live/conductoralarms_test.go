@@ -61,15 +61,7 @@ func runWindows(t *testing.T, a *AssetConfig, currents [][2]float64) [][]Alarm {
 // runEstimates is runWindows also returning each window's estimate.
 func runEstimates(t *testing.T, a *AssetConfig, currents [][2]float64) ([]*Estimate, [][]Alarm) {
 	t.Helper()
-	p, err := newProcessor(a, "test")
-	if err != nil {
-		t.Fatal(err)
-	}
-	est, err := NewInverseEstimator(a.Mode, a.Conductors)
-	if err != nil {
-		t.Fatal(err)
-	}
-	p.est, p.names = est, []string{"cable", "pipe"}
+	p := solvingProcessor(t, a, []string{"cable", "pipe"})
 	rng := rand.New(rand.NewPCG(20, 11))
 	var out [][]Alarm
 	var es []*Estimate

@@ -15,15 +15,7 @@ import (
 // window's estimate.
 func covarianceDraws(t *testing.T, a *AssetConfig, names []string, truth []complex128, n int, samples int, rate, noise float64) ([][]float64, *Estimate) {
 	t.Helper()
-	p, err := newProcessor(a, "test")
-	if err != nil {
-		t.Fatal(err)
-	}
-	est, err := NewInverseEstimator(a.Mode, a.Conductors)
-	if err != nil {
-		t.Fatal(err)
-	}
-	p.est, p.names = est, names
+	p := solvingProcessor(t, a, names)
 	rng := rand.New(rand.NewPCG(20, 13))
 	var cur [][]float64
 	var last *Estimate

@@ -56,15 +56,7 @@ func fenwickDC(t *testing.T, step float64) (*AssetConfig, *processor) {
 	a.Mode, a.Frequency = "dc", 0
 	a.fieldLo, a.fieldHi = defaultEarthField[0], defaultEarthField[1]
 	a.Alarms.MaxCurrent, a.Alarms.Step, a.Alarms.MaxImbalance = 0, step, 0
-	p, err := newProcessor(a, "test")
-	if err != nil {
-		t.Fatal(err)
-	}
-	est, err := NewInverseEstimator(a.Mode, a.Conductors)
-	if err != nil {
-		t.Fatal(err)
-	}
-	p.est, p.names = est, []string{"go", "return"}
+	p := solvingProcessor(t, a, []string{"go", "return"})
 	return a, p
 }
 

@@ -34,12 +34,7 @@ func TestDCWindowSpikeLeftOut(t *testing.T) {
 			a.Mode, a.Frequency = "dc", 0
 			a.fieldLo, a.fieldHi = defaultEarthField[0], defaultEarthField[1]
 			a.Alarms.MaxCurrent, a.Alarms.Step, a.Alarms.MaxImbalance = tc.cur+1, 0.5, 0
-			p, _ := newProcessor(a, "test")
-			est, err := NewInverseEstimator(a.Mode, a.Conductors)
-			if err != nil {
-				t.Fatal(err)
-			}
-			p.est, p.names = est, []string{"go", "return"}
+			p := solvingProcessor(t, a, []string{"go", "return"})
 			rng := rand.New(rand.NewPCG(3, 11))
 			truth := []complex128{complex(tc.cur, 0), complex(-tc.cur, 0)}
 			for k := range 3 {

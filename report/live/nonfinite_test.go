@@ -31,12 +31,7 @@ func TestNonFiniteWindowFailsAndEncodes(t *testing.T) {
 				bg = earth
 			}
 			a.Alarms.Step = 1
-			p, _ := newProcessor(a, "test")
-			est, err := NewInverseEstimator(a.Mode, a.Conductors)
-			if err != nil {
-				t.Fatal(err)
-			}
-			p.est, p.names = est, []string{"go", "return"}
+			p := solvingProcessor(t, a, []string{"go", "return"})
 			rng := rand.New(rand.NewPCG(12, 1))
 			good := synthWindow(a, []complex128{200, -180}, bg, 1764650000, 1000, 1000, a.Noise, rng)
 			e, _ := p.solve(good, p.reduce(good))

@@ -40,12 +40,7 @@ func TestPartialWindow(t *testing.T) {
 	site := harrowFen(t)
 	a := site.Asset("fenwick-lane")
 	a.Alarms = AlarmConfig{MaxChi2: 25}
-	p, err := newProcessor(a, "test")
-	if err != nil {
-		t.Fatal(err)
-	}
-	est, _ := NewInverseEstimator(a.Mode, a.Conductors)
-	p.est, p.names = est, []string{"go", "return"}
+	p := solvingProcessor(t, a, []string{"go", "return"})
 	rng := rand.New(rand.NewPCG(7, 7))
 	n := len(a.Sensors)
 	full := func() *window {

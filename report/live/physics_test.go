@@ -66,12 +66,7 @@ func TestACWindowRecoversCurrents(t *testing.T) {
 	rng := rand.New(rand.NewPCG(6, 50))
 	truth := []complex128{cmplx.Rect(120, 0.3), cmplx.Rect(117, 0.3+math.Pi)} // 3 A leaks
 	w := synthWindow(a, truth, [3]float64{}, 1764650000, 1000, 1000, 2, rng)
-	p, err := newProcessor(a, "test")
-	if err != nil {
-		t.Fatal(err)
-	}
-	est, _ := NewInverseEstimator(a.Mode, a.Conductors)
-	p.est, p.names = est, []string{"go", "return"}
+	p := solvingProcessor(t, a, []string{"go", "return"})
 	r := p.reduce(w)
 	e, alarms := p.solve(w, r)
 	if e.Quality != "good" {
@@ -106,9 +101,7 @@ func TestDCWindowWithEarthField(t *testing.T) {
 	earth := [3]float64{1520, 17850, -45760} // a mid-latitude field, nT (order of magnitude: common practice)
 	truth := []complex128{35, -35}
 	w := synthWindow(a, truth, earth, 1764650000, 200, 200, 1, rng)
-	p, _ := newProcessor(a, "test")
-	est, _ := NewInverseEstimator(a.Mode, a.Conductors)
-	p.est, p.names = est, []string{"go", "return"}
+	p := solvingProcessor(t, a, []string{"go", "return"})
 	e, _ := p.solve(w, p.reduce(w))
 	for i, c := range e.Conductors {
 		if math.Abs(c.Current-real(truth[i])) > 5*c.CurrentSigma+1e-9 {
@@ -131,9 +124,7 @@ func TestStuckSensorExcluded(t *testing.T) {
 	for i := range w.Sensors[2].Bz {
 		w.Sensors[2].Bz[i] = 4095 // a saturated or frozen channel
 	}
-	p, _ := newProcessor(a, "test")
-	est, _ := NewInverseEstimator(a.Mode, a.Conductors)
-	p.est, p.names = est, []string{"go", "return"}
+	p := solvingProcessor(t, a, []string{"go", "return"})
 	e, alarms := p.solve(w, p.reduce(w))
 	if e.Sensors != 4 || e.Missing["fl-e1"] != "stuck" {
 		t.Fatalf("sensors %d missing %v", e.Sensors, e.Missing)

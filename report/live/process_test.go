@@ -11,9 +11,10 @@ import (
 // fenwickProcessor returns a processor for the harrow-fen site's
 // fenwick-lane asset (50 Hz go/return pair, 2 nT noise) with the fast
 // path set up.
-func fenwickProcessor(t testing.TB) (*AssetConfig, *processor) {
+// solvingProcessor is a processor of asset a with the inverse estimator of
+// its conductors, named names in its estimates.
+func solvingProcessor(t testing.TB, a *AssetConfig, names []string) *processor {
 	t.Helper()
-	a := harrowFen(t).Asset("fenwick-lane")
 	p, err := newProcessor(a, "test")
 	if err != nil {
 		t.Fatal(err)
@@ -22,7 +23,14 @@ func fenwickProcessor(t testing.TB) (*AssetConfig, *processor) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	p.est, p.names = est, []string{"go", "return"}
+	p.est, p.names = est, names
+	return p
+}
+
+func fenwickProcessor(t testing.TB) (*AssetConfig, *processor) {
+	t.Helper()
+	a := harrowFen(t).Asset("fenwick-lane")
+	p := solvingProcessor(t, a, []string{"go", "return"})
 	return a, p
 }
 

@@ -20,15 +20,7 @@ import (
 func TestSaturatedBeyondStatedRangeNamed(t *testing.T) {
 	site := testSite(t, strings.ReplaceAll(satSite, "range_nt = 100000", "range_nt = 30000"))
 	a := &site.Assets[0]
-	p, err := newProcessor(a, "test")
-	if err != nil {
-		t.Fatal(err)
-	}
-	est, err := NewInverseEstimator(a.Mode, a.Conductors)
-	if err != nil {
-		t.Fatal(err)
-	}
-	p.est, p.names = est, []string{"line"}
+	p := solvingProcessor(t, a, []string{"line"})
 	rng := rand.New(rand.NewPCG(7, 31))
 	for k, clip := range []bool{false, true} {
 		w, _ := synthDCWindowVarying(a, func(float64) []float64 { return []float64{10} }, steadyEarth, 1764650000+2*float64(k), 10, 20, 0, rng)

@@ -61,15 +61,7 @@ noise = 0.5
 func TestSaturatedSensorLeftOut(t *testing.T) {
 	site := testSite(t, satSite)
 	a := &site.Assets[0]
-	p, err := newProcessor(a, "test")
-	if err != nil {
-		t.Fatal(err)
-	}
-	est, err := NewInverseEstimator(a.Mode, a.Conductors)
-	if err != nil {
-		t.Fatal(err)
-	}
-	p.est, p.names = est, []string{"line"}
+	p := solvingProcessor(t, a, []string{"line"})
 	rng := rand.New(rand.NewPCG(7, 30))
 	for k, amps := range []float64{10, 30, 30} {
 		w, _ := synthDCWindowVarying(a, func(float64) []float64 { return []float64{amps} }, steadyEarth, 1764650000+2*float64(k), 10, 20, 0, rng)

@@ -32,12 +32,7 @@ var farAbove = [][3]float64{{-1, 0, 2}, {0, 0, 2}, {1, 0, 2}, {-2, 0, 1.5}, {2, 
 // bars.
 func busProcessor(t *testing.T, site *AssetConfig) *processor {
 	t.Helper()
-	p, err := newProcessor(site, "test")
-	if err != nil {
-		t.Fatal(err)
-	}
-	est, _ := NewInverseEstimator(site.Mode, site.Conductors)
-	p.est, p.names = est, []string{"A", "B", "C"}
+	p := solvingProcessor(t, site, []string{"A", "B", "C"})
 	return p
 }
 

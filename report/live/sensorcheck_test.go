@@ -45,15 +45,7 @@ noise = NOISE
 func kestrelProcessor(t *testing.T, noise string) (*AssetConfig, *processor) {
 	t.Helper()
 	a := testSite(t, strings.Replace(kestrelSite, "NOISE", noise, 1)).Asset("kestrel-moor")
-	p, err := newProcessor(a, "test")
-	if err != nil {
-		t.Fatal(err)
-	}
-	est, err := NewInverseEstimator(a.Mode, a.Conductors)
-	if err != nil {
-		t.Fatal(err)
-	}
-	p.est, p.names = est, []string{"pipe"}
+	p := solvingProcessor(t, a, []string{"pipe"})
 	return a, p
 }
 
@@ -140,12 +132,7 @@ func TestCleanWindowBlamesNoSensor(t *testing.T) {
 func barSolved(t *testing.T, noise string) (*Estimate, []Alarm) {
 	t.Helper()
 	a := testSite(t, strings.Replace(barSite, "NOISE", noise, 1)).Asset("harrow-bar")
-	p, err := newProcessor(a, "test")
-	if err != nil {
-		t.Fatal(err)
-	}
-	est, _ := NewInverseEstimator(a.Mode, a.Conductors)
-	p.est, p.names = est, []string{"bar"}
+	p := solvingProcessor(t, a, []string{"bar"})
 	w := barWindow(a, 50, 0.5, rand.New(rand.NewPCG(4, 4)))
 	return p.solve(w, p.reduce(w))
 }

@@ -146,15 +146,7 @@ func TestShareFloor(t *testing.T) {
 // (120 A) and return (100 A), harrow-fen.toml.
 func TestShareSigmaMatchesScatter(t *testing.T) {
 	draws := func(t *testing.T, a *AssetConfig, names []string, truth []complex128, n, samples int, rate, noise float64) []*Estimate {
-		p, err := newProcessor(a, "test")
-		if err != nil {
-			t.Fatal(err)
-		}
-		est, err := NewInverseEstimator(a.Mode, a.Conductors)
-		if err != nil {
-			t.Fatal(err)
-		}
-		p.est, p.names = est, names
+		p := solvingProcessor(t, a, names)
 		rng := rand.New(rand.NewPCG(20, 17))
 		bg := [3]float64{}
 		if a.Mode == "dc" {

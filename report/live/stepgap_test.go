@@ -16,12 +16,7 @@ func TestStepAcrossGapSaysSo(t *testing.T) {
 	a := site.Asset("fenwick-lane")
 	a.Alarms = AlarmConfig{MaxChi2: 25, Step: 20}
 	rng := rand.New(rand.NewPCG(16, 7))
-	p, err := newProcessor(a, "test")
-	if err != nil {
-		t.Fatal(err)
-	}
-	est, _ := NewInverseEstimator(a.Mode, a.Conductors)
-	p.est, p.names = est, []string{"go", "return"}
+	p := solvingProcessor(t, a, []string{"go", "return"})
 	w1 := synthWindow(a, []complex128{100, -100}, [3]float64{}, 0, 1000, 500, 2, rng)
 	p.solve(w1, p.reduce(w1))
 	w2 := synthWindow(a, []complex128{150, -150}, [3]float64{}, 5, 1000, 500, 2, rng)
