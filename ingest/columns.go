@@ -2,6 +2,7 @@ package ingest
 
 import (
 	"github.com/apache/arrow-go/v18/arrow"
+	"github.com/apache/arrow-go/v18/arrow/array"
 )
 
 // Canonical column names.
@@ -151,4 +152,16 @@ func fieldType(c int) arrow.DataType {
 		return arrow.BinaryTypes.String
 	}
 	return arrow.PrimitiveTypes.Float64
+}
+
+// Float64Column returns the values of rec's float64 column named name (a
+// view of the batch's buffer, valid while rec is), nil when rec has no
+// such column or it holds another type.
+func Float64Column(rec arrow.RecordBatch, name string) []float64 {
+	for _, i := range rec.Schema().FieldIndices(name) {
+		if a, ok := rec.Column(i).(*array.Float64); ok {
+			return a.Float64Values()
+		}
+	}
+	return nil
 }

@@ -7,7 +7,6 @@ import (
 	"os"
 	"path/filepath"
 
-	"github.com/apache/arrow-go/v18/arrow/array"
 	"github.com/spf13/pflag"
 
 	"undercurrent/ingest"
@@ -177,23 +176,7 @@ func (c *countingReader) Next() bool {
 	rec := c.Reader.RecordBatch()
 	c.rows += rec.NumRows()
 	if len(c.bx) < keepRows {
-		var cols [3][]float64
-		for i, f := range rec.Schema().Fields() {
-			j := -1
-			switch f.Name {
-			case ingest.ColBx:
-				j = 0
-			case ingest.ColBy:
-				j = 1
-			case ingest.ColBz:
-				j = 2
-			}
-			if j >= 0 {
-				if a, ok := rec.Column(i).(*array.Float64); ok {
-					cols[j] = a.Float64Values()
-				}
-			}
-		}
+		cols := [3][]float64{ingest.Float64Column(rec, ingest.ColBx), ingest.Float64Column(rec, ingest.ColBy), ingest.Float64Column(rec, ingest.ColBz)}
 		if cols[0] != nil && cols[1] != nil && cols[2] != nil {
 			n := min(len(cols[0]), keepRows-len(c.bx))
 			c.bx = append(c.bx, cols[0][:n]...)

@@ -60,37 +60,14 @@ func (o *replayOptions) eachReplayRow(ctx context.Context, path string, opts []i
 			break
 		}
 		rec := r.RecordBatch()
-		var tc, bx, by, bz, temp, x, y, z []float64
+		tc, temp := ingest.Float64Column(rec, ingest.ColTime), ingest.Float64Column(rec, ingest.ColTemp)
+		bx, by, bz := ingest.Float64Column(rec, ingest.ColBx), ingest.Float64Column(rec, ingest.ColBy), ingest.Float64Column(rec, ingest.ColBz)
+		x, y, z := ingest.Float64Column(rec, ingest.ColX), ingest.Float64Column(rec, ingest.ColY), ingest.Float64Column(rec, ingest.ColZ)
 		var group *array.String
 		hasGroup := false
-		for i, f := range rec.Schema().Fields() {
-			if f.Name == ingest.ColGroup {
-				hasGroup = true
-				group, _ = rec.Column(i).(*array.String)
-				continue
-			}
-			a, ok := rec.Column(i).(*array.Float64)
-			if !ok {
-				continue
-			}
-			switch f.Name {
-			case ingest.ColTime:
-				tc = a.Float64Values()
-			case ingest.ColBx:
-				bx = a.Float64Values()
-			case ingest.ColBy:
-				by = a.Float64Values()
-			case ingest.ColBz:
-				bz = a.Float64Values()
-			case ingest.ColTemp:
-				temp = a.Float64Values()
-			case ingest.ColX:
-				x = a.Float64Values()
-			case ingest.ColY:
-				y = a.Float64Values()
-			case ingest.ColZ:
-				z = a.Float64Values()
-			}
+		if gi := rec.Schema().FieldIndices(ingest.ColGroup); len(gi) > 0 {
+			hasGroup = true
+			group, _ = rec.Column(gi[0]).(*array.String)
 		}
 		rd.temp = temp != nil
 		if !hasGroup && o.sensor == "" {
