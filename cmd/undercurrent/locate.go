@@ -652,6 +652,10 @@ type survey struct {
 	// baseCheck holds what the comparison with the base record's field
 	// needs once the groups are fitted (basefield.go).
 	baseCheck *baseCheck
+	// baseRover is the first base-corrected log's times (their span) and
+	// how they were written, for naming the log a base record's offset
+	// lies in (baselag.go).
+	baseRover *ingest.Samples
 	// swings is the check for a sensor turning within the groups
 	// (sensorturn.go), made once they are fitted.
 	swings *swing
@@ -735,6 +739,14 @@ func runLocate(ctx context.Context, o *locateOptions, logs []string, progress io
 	}
 	if err := fitGroups(ctx, o, sv, progress); err != nil {
 		return nil, err
+	}
+	// A base record paired at the wrong time (baselag.go).
+	w, err := baseLagCheck(o, sv)
+	if err != nil {
+		return nil, withWarnings(err, sv.alerts, sv.warnings)
+	}
+	if w != "" {
+		sv.alerts = append(sv.alerts, w)
 	}
 	return buildDocument(ctx, o, sv)
 }
@@ -1088,6 +1100,10 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 				return nil, err
 			}
 			baseNotes = append(baseNotes, baseSummary(path, rep))
+			if sv.baseRover == nil {
+				lo, hi := finiteSpan(s.Time)
+				sv.baseRover = &ingest.Samples{Time: []float64{lo, hi}, NaiveTime: s.NaiveTime, TimeSaidUTC: s.TimeSaidUTC, Source: s.Source, Meta: s.Meta}
+			}
 			if w := noteBaseGaps(sv, o, s, rep); w != "" {
 				sv.alerts = append(sv.alerts, path+": "+w)
 			}
