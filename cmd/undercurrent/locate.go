@@ -2162,6 +2162,8 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 	}
 	if w := driftWarning(o, sv); w != "" {
 		head.Warnings = append(head.Warnings, w)
+	} else if w := curvedDriftWarning(o, sv); w != "" {
+		head.Warnings = append(head.Warnings, w)
 	}
 	if w := wanderWarning(sv); w != "" {
 		// The fits told the frequency's offset from the walk's: the
