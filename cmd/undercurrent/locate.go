@@ -105,6 +105,12 @@ type locateOptions struct {
 	// buildProgress, when not nil, is told how far report.Build's search
 	// for magnetised objects has got (stageline.go's objectStages).
 	buildProgress report.ProgressFunc
+
+	// walked is set by runLocate: the time from the first to the last
+	// DC reading of the groups, s; 0 for an AC run or a log without
+	// times. The summary says by it whether a run without a base log
+	// lasted long enough for the Earth's drift to matter.
+	walked float64
 }
 
 // resultFiles are the files locate writes into its output directory.
@@ -495,7 +501,7 @@ Examples:
 				}
 				return report.WriteJSON(stdout, doc)
 			}
-			printSummary(stdout, doc, time.Since(start))
+			printSummary(stdout, doc, time.Since(start), o.walked)
 			if o.out != "" {
 				fmt.Fprintf(stdout, "results in %s: %s\n", o.out, strings.Join(resultFiles, ", "))
 				if w := localGeoJSONWarning(doc); w != "" {
@@ -748,7 +754,26 @@ func runLocate(ctx context.Context, o *locateOptions, logs []string, progress io
 	if w != "" {
 		sv.alerts = append(sv.alerts, w)
 	}
+	o.walked = walkedSpan(sv)
 	return buildDocument(ctx, o, sv)
+}
+
+// walkedSpan is the time from the first to the last DC reading of the
+// groups, s; 0 for an AC run or readings without times.
+func walkedSpan(sv *survey) float64 {
+	if sv.ac {
+		return 0
+	}
+	lo, hi := math.Inf(1), math.Inf(-1)
+	for _, g := range sv.groups {
+		for _, t := range g.stamps {
+			lo, hi = math.Min(lo, t), math.Max(hi, t) // NaN (no time) leaves them
+		}
+	}
+	if !(hi > lo) || math.IsInf(hi-lo, 0) {
+		return 0
+	}
+	return hi - lo
 }
 
 // readSurvey reads the logs, applies the corrections, demodulates and
@@ -2263,6 +2288,8 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 	}
 	if w := driftWarning(o, sv); w != "" {
 		head.Warnings = append(head.Warnings, w)
+	} else if w := curvedDriftWarning(o, sv); w != "" {
+		head.Warnings = append(head.Warnings, w)
 	}
 	if w := wanderWarning(sv); w != "" {
 		// The fits told the frequency's offset from the walk's: the
@@ -2699,6 +2726,27 @@ func sourceColumns(doc *report.Document, g *report.Group, i int) (cur, dep strin
 	return sourceCurrent(g.Sources[i]), report.PlusMinus(depth, sigma)
 }
 
+// baseDriftSpan is the least time, s, the DC readings of a run without a
+// base correction span for the summary to say that none was applied: over
+// half an hour the Earth's field changes by a few nT on a quiet day and by
+// tens on a disturbed one.
+const baseDriftSpan = 1800
+
+// baseLine is the summary's line on the base-station correction: what it
+// removed, as results.json's base_station says; or, in a DC run spanning
+// baseDriftSpan or more without one, that none was applied; "" otherwise.
+// Before, the summary read the same with a base correction as without
+// (found in review).
+func baseLine(doc *report.Document, walked float64) string {
+	if b := doc.BaseStation; b != nil {
+		return fmt.Sprintf("base-station correction from %s: %s", b.File, b.Summary)
+	}
+	if doc.Signal.Mode == report.SignalAC || !(walked >= baseDriftSpan) {
+		return ""
+	}
+	return fmt.Sprintf("base-station correction: none applied; the readings span %s, over which the Earth's own field changes by a few nT on a quiet day and by tens on a disturbed one, and that change is in them (a base station log given with --base takes it out)", hoursWords(walked))
+}
+
 // failedFit fills the current column of a failed fit in the terminal's
 // table, whose depth and cover read "-".
 const failedFit = "fit failed, no value"
@@ -2716,8 +2764,9 @@ func robustGroups(doc *report.Document) int {
 }
 
 // printSummary prints the groups and findings for a person, then the
-// cautions.
-func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
+// cautions. walked is the time the DC readings span, s (0 when unknown):
+// it decides whether a run without a base correction says so.
+func printSummary(w io.Writer, doc *report.Document, took time.Duration, walked float64) {
 	ok, readings := soundGroups(doc)
 	unit := "readings"
 	if doc.Signal.Mode == report.SignalAC {
@@ -2738,6 +2787,9 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 	}
 	fmt.Fprintf(w, "fitted %d group(s), %d %s, in %.2f s: %s\n",
 		len(doc.Groups), readings, unit, took.Seconds(), counts)
+	if l := baseLine(doc, walked); l != "" {
+		fmt.Fprintln(w, l)
+	}
 	ref := "below the sensors' mean height"
 	if doc.DepthReference.PerGroup {
 		ref = "below each group's own sensors (their mean height, or with --sensor-height their height over each line where the logged heights differ), not one height"
