@@ -72,8 +72,9 @@ cannot tell.
 The log is read twice, so that it need not be held whole: once to check it
 and count its batches (nothing is sent from a log refused), then to send
 its batches as they are cut. A log whose sensors' rows follow one
-another instead of running together in time, or one read with
---time-order any (sorted in memory), is held about whole.
+another instead of running together in time is read once per sensor
+and the reads merged by time, in bounded memory too; one read with
+--time-order any (sorted in memory) is held about whole.
 
 Replay reads the data stream's state and waits for the broker's
 acknowledgement of every batch (JetStream), so its account must be allowed
