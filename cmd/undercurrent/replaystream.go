@@ -40,6 +40,9 @@ type replayRead struct {
 	warns         []string // the reader's own, and --drop-missing's
 	rows, dropped int
 	temp          bool // the log has a temperature column
+	// back counts the rows (of all sensors, after --drop-missing) whose
+	// time is before the row's before.
+	back int
 }
 
 var errStopRows = errors.New("stop")
@@ -56,6 +59,7 @@ func (o *replayOptions) eachReplayRow(ctx context.Context, path string, opts []i
 	defer r.Release()
 	intern := map[string]string{}
 	row := 0
+	prevT := math.NaN()
 	for {
 		if err := ctx.Err(); err != nil {
 			return rd, err
@@ -99,6 +103,10 @@ func (o *replayOptions) eachReplayRow(ctx context.Context, path string, opts []i
 			}
 			i := row
 			row++
+			if t < prevT {
+				rd.back++
+			}
+			prevT = t
 			name := o.sensor
 			if hasGroup {
 				g := ""
@@ -162,6 +170,7 @@ type replayScan struct {
 	// whose sensors' rows follow one another. The second read holds the
 	// rows of lag plus a batch duration.
 	lag     float64
+	sorted  bool                     // read from the log put in time order (--time-order any)
 	largest map[string]*broker.Batch // each sensor's largest batch
 	// spans holds each sensor's first and last complete rows; complete
 	// counts the complete rows, from the earliest time, earliest.
@@ -180,6 +189,7 @@ type replayScan struct {
 // resumed; held nil for none).
 func (o *replayOptions) scanReplay(ctx context.Context, path string, opts []ingest.Option, held map[string]float64, shift float64) (*replayScan, error) {
 	sc := &replayScan{largest: map[string]*broker.Batch{}, spans: map[string][2]int{}, first: math.NaN(), last: math.Inf(-1), earliest: math.Inf(1)}
+	sc.sorted = o.runs != nil
 	type sensorState struct {
 		b       *broker.Batch // being cut; empty between batches
 		seq     int
@@ -216,7 +226,7 @@ func (o *replayOptions) scanReplay(ctx context.Context, path string, opts []inge
 			b.Temp = b.Temp[:0]
 		}
 	}
-	rd, err := o.eachReplayRow(ctx, path, opts, func(r replayRow) error {
+	rd, err := o.logRows(ctx, path, opts, func(r replayRow) error {
 		if math.IsNaN(r.t) || math.IsNaN(r.bx) || math.IsNaN(r.by) || math.IsNaN(r.bz) {
 			return nil // as the live pipeline, replay skips incomplete rows
 		}
@@ -244,7 +254,7 @@ func (o *replayOptions) scanReplay(ctx context.Context, path string, opts []inge
 				if r.grouped {
 					who = fmt.Sprintf(" of sensor %q", r.sensor)
 				}
-				return fmt.Errorf("%s: data rows %d and %d%s have the same time, %s: the live pipeline takes one reading per sensor at a time; remove the repeated row", path, s.lastRow+1, r.row+1, who, strconv.FormatFloat(r.t, 'f', -1, 64))
+				return fmt.Errorf("%s: data rows %d and %d%s have the same time, %s: the live pipeline takes one reading per sensor at a time; remove the repeated row", path, min(s.lastRow, r.row)+1, max(s.lastRow, r.row)+1, who, strconv.FormatFloat(r.t, 'f', -1, 64))
 			case r.t < prev:
 				return fmt.Errorf("%s: row %d of the log: column time: time goes backwards for sensor %q: %s after %s (row %d of the log); if the rows may come in any order, allow it (on the command line --time-order any) and they are sent sorted by time", path, r.row+1, r.sensor, broker.TimeText(r.t), broker.TimeText(prev), s.lastRow+1)
 			}
@@ -314,7 +324,7 @@ func (o *replayOptions) replaySource(ctx context.Context, path string, opts []in
 	} else {
 		var err error
 		next, stop = iter.Pull(func(yield func(replayRow) bool) {
-			_, err = o.eachReplayRow(ctx, path, opts, func(r replayRow) error {
+			_, err = o.logRows(ctx, path, opts, func(r replayRow) error {
 				if !yield(r) {
 					return errStopRows
 				}
@@ -376,7 +386,7 @@ const replayMaxReaders = 64
 // sensors' rows follow one another, not interleaved in time), and the log
 // is a regular file, to be read once per sensor.
 func (sc *replayScan) perSensor(path string, dur float64) bool {
-	if len(sc.sensors) < 2 || len(sc.sensors) > replayMaxReaders || !(sc.lag > 0) {
+	if sc.sorted || len(sc.sensors) < 2 || len(sc.sensors) > replayMaxReaders || !(sc.lag > 0) {
 		return false
 	}
 	if st, err := os.Stat(path); err != nil || !st.Mode().IsRegular() {

@@ -5,6 +5,7 @@ import (
 	"context"
 	"fmt"
 	"io"
+	"math/rand/v2"
 	"os"
 	"path/filepath"
 	"strings"
@@ -12,6 +13,7 @@ import (
 	"time"
 
 	"github.com/nats-io/nats.go/jetstream"
+	"github.com/spf13/pflag"
 
 	"undercurrent/ingest"
 	"undercurrent/ingest/broker"
@@ -257,5 +259,81 @@ func TestReplayChunkedLogMerged(t *testing.T) {
 	writeRunsLog(t, path, runs)
 	if held := replayHeld(t, path); held > 2*3+1 {
 		t.Errorf("held %d batches at once, want at most 7", held)
+	}
+}
+
+// A log read with --time-order any is put in time order on disk, in runs
+// of replaySortRows rows (here 1000) in a folder of the system's temporary
+// folder, and merged by time: it sends what the whole log put in time
+// order in memory and split sends (sortByTime, broker.SplitSamples), in
+// the same order, and the folder is gone once the replay stops. Before,
+// the whole log was held in memory and no run was written.
+func TestReplayAnyOrderSortedOnDisk(t *testing.T) {
+	defer func(n int) { replaySortRows = n }(replaySortRows)
+	replaySortRows = 1000
+	tmp := t.TempDir()
+	t.Setenv("TMPDIR", tmp)
+	dir := t.TempDir()
+	// Three sensors at 100 Hz for 30 s, in a shuffled order.
+	var lines []string
+	for k := range 3000 {
+		for _, g := range []string{"s1", "s2", "s3"} {
+			lines = append(lines, fmt.Sprintf("%.2f,%d,-6543.2,45000.1,%s\n", 1796104800+float64(k)/100, 12000+k%97, g))
+		}
+	}
+	rng := rand.New(rand.NewPCG(7, 8))
+	rng.Shuffle(len(lines), func(i, j int) { lines[i], lines[j] = lines[j], lines[i] })
+	path := filepath.Join(dir, "shuffled.csv")
+	if err := os.WriteFile(path, []byte("time,bx,by,bz,group\n"+strings.Join(lines, "")), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	s, err := ingest.ReadSamples(path, ingest.WithTimeOrder(ingest.TimeAnyOrder))
+	if err != nil {
+		t.Fatal(err)
+	}
+	back, _ := sortByTime(s)
+	want, err := broker.SplitSamples(s, "fenwick-lane", "", 0.1)
+	if err != nil {
+		t.Fatal(err)
+	}
+	o := &replayOptions{asset: "fenwick-lane", batch: 100 * time.Millisecond}
+	fs := pflag.NewFlagSet("replay", pflag.ContinueOnError)
+	o.read.add(fs)
+	if err := fs.Parse([]string{"--time-order", "any"}); err != nil {
+		t.Fatal(err)
+	}
+	var out bytes.Buffer
+	src, first, last, stop, err := replayLog(context.Background(), o, fs, path, &out, io.Discard)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if src.Total != len(want) || first != want[0].Time[0] || last != s.Time[s.Len()-1] {
+		t.Errorf("%d batches from %v to %v, want %d from %v to %v", src.Total, first, last, len(want), want[0].Time[0], s.Time[s.Len()-1])
+	}
+	if w := fmt.Sprintf("warning: %s: time goes backwards at %d rows (--time-order any)", path, back); !strings.Contains(out.String(), w) {
+		t.Errorf("warnings %q, want %q", out.String(), w)
+	}
+	runs, _ := filepath.Glob(filepath.Join(tmp, "undercurrent-replay-*", "run-*"))
+	if len(runs) != 9 {
+		t.Errorf("%d sorted runs on disk while sending, want 9 of 1000 rows", len(runs))
+	}
+	for i := 0; ; i++ {
+		b, err := src.Next()
+		if err != nil {
+			t.Fatal(err)
+		}
+		if b == nil {
+			if i != len(want) {
+				t.Fatalf("%d batches, want %d", i, len(want))
+			}
+			break
+		}
+		if i >= len(want) || b.Sensor != want[i].Sensor || fmt.Sprint(b.Time, b.Bx) != fmt.Sprint(want[i].Time, want[i].Bx) {
+			t.Fatalf("batch %d differs from the whole log's sorted split", i)
+		}
+	}
+	stop()
+	if left, _ := os.ReadDir(tmp); len(left) != 0 {
+		t.Errorf("%d entries left in the temporary folder after the replay stopped", len(left))
 	}
 }
