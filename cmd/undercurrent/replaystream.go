@@ -173,7 +173,7 @@ type replayScan struct {
 	sorted  bool                     // read from the log put in time order (--time-order any)
 	largest map[string]*broker.Batch // each sensor's largest batch
 	// spans holds each sensor's first and last complete rows; complete
-	// counts the complete rows, from the earliest time, earliest.
+	// counts the complete rows, earliest is their earliest time.
 	spans    map[string][2]int
 	complete int
 	earliest float64
