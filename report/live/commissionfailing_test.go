@@ -38,7 +38,7 @@ func TestCommissionFailingShownAndAlarmedEarly(t *testing.T) {
 		}
 		return ai
 	}
-	// Two windows: the first try.
+	// One second, two windows: the first try.
 	h.publish(0, 1)
 	waitFor(t, 30*time.Second, "the first try", func() bool { return calls.Load() >= 1 })
 	waitFor(t, 30*time.Second, "the endpoint's commissioning state", func() bool { return info().Commissioning != "" })
@@ -48,8 +48,9 @@ func TestCommissionFailingShownAndAlarmedEarly(t *testing.T) {
 	if n := len(commissioningAlarms(h)); n != 0 {
 		t.Errorf("%d commissioning alarms after the first try, want none yet", n)
 	}
-	// Six windows more: tries 2 to 7; the alarm at the third, once.
-	h.publish(1, 4)
+	// Three seconds more, six windows: tries 2 to 7; the alarm at the
+	// third, once.
+	h.publish(1, 3)
 	waitFor(t, 30*time.Second, "seven tries", func() bool { return calls.Load() >= 7 })
 	waitFor(t, 30*time.Second, "the endpoint at try 7", func() bool { return strings.Contains(info().Commissioning, "try 7 of") })
 	alarms := commissioningAlarms(h)
