@@ -307,27 +307,23 @@ func (w *assetWorker) commission(win *window) error {
 		return w.commissionStopped(win, fmt.Errorf("live: asset %s: commissioning: %w", w.asset.Name, err))
 	}
 	var unres *unresolvedError
+	secs := float64(len(fitted)) * w.asset.Window.Seconds()
 	if errors.As(err, &unres) && unres.layout {
 		// The currents flow but the sensors cannot place the lines: count
 		// it as a failure that more readings hardly mend, and stop after
 		// commissionLimit of them with an alarm that names the layout.
 		w.misfits++
-		msg := "waiting for a geometry the sensors can fix: " + err.Error()
-		if w.misfits == 1 {
-			w.log.Warn("commissioning cannot place the conductors with this sensor layout; trying again with more data", "err", err, "windows", len(w.pending))
+		advice := "more readings of this layout do not place the lines: mend the site file (sensors across the lines, or model = \"fixed\") and restart serve"
+		if w.misfits >= limit {
+			return w.commissionStopped(win, &needsSiteError{fmt.Errorf("live: asset %s: commissioning failed in each of %d tries, with %g s of readings at the last: %w; "+advice,
+				w.asset.Name, w.misfits, secs, err)})
 		}
-		w.waiting = true
-		w.svc.waiting.Store(w.asset.Name, msg)
-		if w.misfits > limit {
-			return w.commissionStopped(win, &needsSiteError{fmt.Errorf("live: asset %s: commissioning failed in each of %d tries, with %g s of readings at the last: %w; "+
-				"more readings of this layout do not place the lines: mend the site file (sensors across the lines, or model = \"fixed\") and restart serve",
-				w.asset.Name, w.misfits, float64(len(fitted))*w.asset.Window.Seconds(), err)})
-		}
+		w.commissionFailing(win, "waiting for a geometry the sensors can fix: "+err.Error(), err, secs, limit, advice)
 		return nil
 	}
 	if errors.As(err, &unres) {
-		w.misfits = 0
-		if !w.waiting {
+		w.misfits, w.failAlarmed = 0, false
+		if v, _ := w.svc.waiting.Load(w.asset.Name); !w.waiting || !strings.HasPrefix(fmt.Sprint(v), "waiting for current") {
 			w.log.Warn("commissioning waits for windows in which the conductors' currents flow: the held windows are published once it is commissioned", "err", err, "windows", len(w.pending))
 		}
 		w.waiting = true
@@ -336,29 +332,31 @@ func (w *assetWorker) commission(win *window) error {
 	}
 	if err != nil {
 		w.misfits++
-		w.log.Warn("commissioning failed; trying again with more data", "err", err, "windows", len(w.pending))
-		if w.misfits > limit {
-			err = errors.New(w.sensorNames(err.Error()))
+		named := errors.New(w.sensorNames(err.Error()))
+		// The likely causes, unless the refusal gave them already.
+		causes := " (an extended conductor such as a flat bar close to the sensors, a bend, another source near the sensors, a conducting enclosure or screen (AC), " +
+			"or a sensor's position or orientation in the site file wrong)"
+		if strings.Contains(err.Error(), "flat bar") {
+			causes = ""
+		}
+		advice := "more readings do not mend a model that misses them" + causes + ": mend the site file (or hold the geometry where the conductors run with model = \"fixed\", " +
+			"a bend or finite bars as kind = \"segment\" from and to) and restart serve"
+		if w.misfits >= limit {
+			err = named
 			if name, ok := w.misfitSensor(&sum, fitted); ok {
 				err = fmt.Errorf("%w; without sensor %s the readings commission: its orientation or position in the site file is likely wrong, or it was moved or turned", err, name)
 			}
-			// The likely causes, unless the refusal gave them already.
-			causes := " (an extended conductor such as a flat bar close to the sensors, a bend, another source near the sensors, a conducting enclosure or screen (AC), " +
-				"or a sensor's position or orientation in the site file wrong)"
-			if strings.Contains(err.Error(), "flat bar") {
-				causes = ""
-			}
-			return w.commissionStopped(win, &needsSiteError{fmt.Errorf("live: asset %s: commissioning failed in each of %d tries, with %g s of readings at the last: %w; "+
-				"more readings do not mend a model that misses them%s: mend the site file (or hold the geometry with model = \"fixed\") and restart serve",
-				w.asset.Name, w.misfits, float64(len(fitted))*w.asset.Window.Seconds(), err, causes)})
+			return w.commissionStopped(win, &needsSiteError{fmt.Errorf("live: asset %s: commissioning failed in each of %d tries, with %g s of readings at the last: %w; "+advice,
+				w.asset.Name, w.misfits, secs, err)})
 		}
+		w.commissionFailing(win, "failing: "+named.Error(), named, secs, limit, advice)
 		return nil
 	}
 	if w.waiting {
 		w.waiting = false
 		w.svc.waiting.Delete(w.asset.Name)
 	}
-	w.misfits = 0
+	w.misfits, w.failAlarmed = 0, false
 	if len(conds) == len(w.asset.Conductors) && !sameNames(conds, w.asset.Conductors) {
 		for i := range conds { // a commissioner that does not name them
 			conds[i].Name = w.asset.Conductors[i].Name
@@ -407,9 +405,58 @@ func (w *assetWorker) commission(win *window) error {
 
 // commissionLimit is the most windows the commissioning fit averages,
 // and the most tries of a fit that fails (other than for want of
-// current) before the asset is stopped: twenty commissioning periods.
+// current) before the asset is stopped: twenty commissioning periods,
+// 20 * periodWindows (before, 20 * (C/W + 1) windows: 24 periods for a
+// 20 s period of 4 s windows).
 func (w *assetWorker) commissionLimit() int {
-	return 20 * int(w.asset.Commission.Seconds()/w.asset.Window.Seconds()+1)
+	return 20 * w.periodWindows()
+}
+
+// periodWindows is how many windows one commissioning period holds (the
+// first try is made once they are in).
+func (w *assetWorker) periodWindows() int {
+	return max(1, int(math.Ceil(w.asset.Commission.Seconds()/w.asset.Window.Seconds()-1e-9)))
+}
+
+// commissionAlarmAfter is the try of a run of failed commissioning fits
+// (other than for want of current) at which the commissioning alarm is
+// raised: once the failure has lasted a second commissioning period (the
+// fit then averages twice the readings of the first try, which halves
+// the noise's share of chi-square: a fit that still misses them misses
+// the model), at least the third try. Before, nothing but a WARN per
+// window told of it until the asset stopped twenty periods on (43 min
+// for a 2 min period of 10 s windows).
+func (w *assetWorker) commissionAlarmAfter() int {
+	return max(3, w.periodWindows()+1)
+}
+
+// commissionFailing records try w.misfits of a commissioning fit that
+// failed with err (a misfit, or a layout that does not fix the lines),
+// secs of readings fitted: the asset's endpoint shows state with the
+// tries (commissioning: "failing: ..."), the first try is logged, and at
+// commissionAlarmAfter tries a commissioning alarm is raised, once in the
+// run (until a fit commissions, or waits for current), saying the asset
+// stops after limit tries and what to mend (advice).
+func (w *assetWorker) commissionFailing(win *window, state string, err error, secs float64, limit int, advice string) {
+	n := w.misfits
+	w.waiting = true
+	w.svc.waiting.Store(w.asset.Name, fmt.Sprintf("%s (try %d of at most %d, %g s of readings; the held windows are published once it commissions)", state, n, limit, secs))
+	if n == 1 {
+		w.log.Warn("commissioning failed; trying again with each window (the asset's endpoint shows the tries)", "err", err, "windows", len(w.pending), "stop_after", limit)
+	} else {
+		w.log.Debug("commissioning failed again", "err", err, "tries", n)
+	}
+	if n < w.commissionAlarmAfter() || w.failAlarmed {
+		return
+	}
+	w.failAlarmed = true
+	msg := fmt.Sprintf("commissioning has failed in each of %d tries, with %g s of readings at the last: %v; it is tried again with each window and the asset stopped after %d tries (twenty commissioning periods) unless it commissions; %s",
+		n, secs, err, limit, advice)
+	w.log.Warn("commissioning alarm: "+msg, "tries", n)
+	al := w.proc.alarm(win, AlarmCommissioning, "", float64(n), float64(w.commissionAlarmAfter()), msg)
+	if perr := w.publishAlarm(al, w.msgID(win.Index)+"/"+al.Kind+"/"); perr != nil {
+		w.log.Warn("the commissioning alarm could not be published", "err", perr)
+	}
 }
 
 // misfitSensor names the one sensor without whose mean reading sum (of

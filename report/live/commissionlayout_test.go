@@ -70,8 +70,13 @@ func TestCommissionLayoutStops(t *testing.T) {
 	t.Logf("stopped: %s", r.ai.Stopped)
 	r.end(t)
 	alarms := commissioningAlarms(h)
-	if len(alarms) != 1 || !strings.Contains(alarms[0].Message, "sensor layout") || strings.Contains(alarms[0].Message, "flat bar") {
-		t.Errorf("commissioning alarms %+v, want one naming the sensor layout", alarms)
+	if len(alarms) != 2 {
+		t.Errorf("commissioning alarms %+v, want two: the failing one and the stop", alarms)
+	}
+	for _, al := range alarms {
+		if !strings.Contains(al.Message, "sensor layout") || strings.Contains(al.Message, "flat bar") {
+			t.Errorf("commissioning alarm %q, want one naming the sensor layout", al.Message)
+		}
 	}
 }
 

@@ -101,7 +101,10 @@ func commissionFromPoints(p *inverse.Problem, stated []ConductorConfig, start [3
 		unknowns += 3 + n
 	}
 	if m := len(p.Points) * readingsPerSensor(p); m <= unknowns {
-		return nil, fmt.Errorf("%d sensors give %d readings, too few for the %d unknowns of %d lines fitted from their points", len(p.Points), m, unknowns, n)
+		// The readings' count does not grow with more windows: stop
+		// until the site file is mended, as the free fit does (fit).
+		return nil, &needsSiteError{fmt.Errorf("%d sensors give %d readings, too few for the %d unknowns of %d lines fitted from their points: "+
+			"add sensors, or hold the conductors where they run with model = \"fixed\" (kind = \"segment\" for finite bars)", len(p.Points), m, unknowns, n)}
 	}
 	// split returns groups with pair i (of groups) as two single lines.
 	split := func(groups []fitGroup, i int) []fitGroup {

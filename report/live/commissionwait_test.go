@@ -219,14 +219,21 @@ func TestCommissionMisfitCapStops(t *testing.T) {
 		return err == nil && e.Revision() >= rev0+3
 	})
 	r.end(t)
-	// limit+1 tries, then one without each of the three sensors
+	// limit tries, then one without each of the three sensors
 	// (misfitSensor); none after the stop.
-	if n := calls.Load(); n != n0 || int(n0) != limit+1+len(a.Sensors) {
-		t.Errorf("commissioned %d times by the stop, %d in all; want %d, none after (not taken again)", n0, n, limit+1+len(a.Sensors))
+	if n := calls.Load(); n != n0 || int(n0) != limit+len(a.Sensors) {
+		t.Errorf("commissioned %d times by the stop, %d in all; want %d, none after (not taken again)", n0, n, limit+len(a.Sensors))
 	}
+	// The failing alarm at the third try (commissionAlarmAfter), then the
+	// stop; both name the likely cause and segments for a bend.
 	alarms := commissioningAlarms(h)
-	if len(alarms) != 1 || !strings.Contains(alarms[0].Message, "flat bar") {
-		t.Errorf("commissioning alarms %+v, want one naming the likely cause", alarms)
+	if len(alarms) != 2 || !strings.Contains(alarms[0].Message, "failed in each of 3 tries") || !strings.Contains(alarms[1].Message, "commissioning stopped") {
+		t.Fatalf("commissioning alarms %+v, want the failing one at the third try, then the stop", alarms)
+	}
+	for _, al := range alarms {
+		if !strings.Contains(al.Message, "flat bar") || !strings.Contains(al.Message, `kind = "segment"`) {
+			t.Errorf("commissioning alarm %q names neither the likely cause nor segments", al.Message)
+		}
 	}
 }
 
@@ -368,9 +375,9 @@ type stopRun struct {
 
 // commissionUntilStopped runs the service on stopSiteText's asset with
 // commissioner c, publishes readings for the commissioning limit's windows
-// (commissionLimit: 20 * (1 s / 0.5 s + 1) = 60 failed fits, from the
-// second window on) and four more, and waits for the asset to stop. End
-// the run with end.
+// (commissionLimit: twenty commissioning periods, 20 * (1 s / 0.5 s) =
+// 40 failed fits, from the second window on) and four more, and waits
+// for the asset to stop. End the run with end.
 func commissionUntilStopped(t *testing.T, h *harness, c Commissioner) *stopRun {
 	t.Helper()
 	site := testSite(t, stopSiteText)
@@ -385,7 +392,7 @@ func commissionUntilStopped(t *testing.T, h *harness, c Commissioner) *stopRun {
 	t.Cleanup(r.cancel)
 	go func() { r.done <- r.svc.Run(ctx) }()
 	<-r.svc.Ready()
-	r.limit = 20 * int(r.asset.Commission.Seconds()/r.asset.Window.Seconds()+1)
+	r.limit = 20 * int(r.asset.Commission.Seconds()/r.asset.Window.Seconds())
 	h.publish(0, 0.5*float64(r.limit+4))
 	waitFor(t, 60*time.Second, "the asset stopped", func() bool {
 		r.ai, err = r.svc.assetInfo(context.Background(), r.svc.site.Asset("fenwick-lane"))

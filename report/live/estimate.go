@@ -37,7 +37,10 @@ type Estimate struct {
 	// alarms.max_chi2; "implausible" when the readings do not look like
 	// magnetometer readings in nanotesla (Implausible says why: the Earth's
 	// field outside earth_field, or a chi-square far below its degrees of
-	// freedom with noise given); "failed" when the solve failed.
+	// freedom with noise given); "failed" when the solve failed. A
+	// degraded window whose fitted background lies outside earth_field
+	// by less than misfitFieldFactor stays "degraded": the background
+	// absorbs the model's misfit, which Implausible then says.
 	RMS     float64 `json:"rms_nt"`
 	Chi2    float64 `json:"chi2"`
 	DOF     int     `json:"dof"`
@@ -60,7 +63,8 @@ type Estimate struct {
 	// Recommissioning at the larger current makes it smaller.
 	Chi2Geometry float64 `json:"chi2_geometry,omitempty"`
 	// Implausible lists why the window's readings look implausible (the
-	// messages of its implausible alarms); absent when they do not.
+	// messages of its implausible alarms), or on a degraded window why
+	// its fitted background is not the Earth's field; absent when none.
 	Implausible []string `json:"implausible,omitempty"`
 	// Sensors used, samples used, and the sensors left out or short of
 	// samples with why: "silent", "stuck", "saturated", "131 of 500 samples" (used, but

@@ -251,7 +251,11 @@ type AssetInfo struct {
 	// Commissioning, when this worker holds a "commission" asset not yet
 	// commissioned because the readings do not resolve its conductors'
 	// fields (their currents off, or too small), says so: "waiting for
-	// current: ...". Its windows are held until the current flows.
+	// current: ...". Its windows are held until the current flows. When
+	// the fit fails otherwise it says "failing: <reason> (try N of at
+	// most M, ...)" (or "waiting for a geometry the sensors can fix: ..."
+	// with the tries), from the first failed fit until the asset
+	// commissions or stops.
 	Commissioning string `json:"commissioning,omitempty"`
 	// Geometry is the geometry a "commission" asset holds, once
 	// commissioned: each conductor's point, direction, depth and azimuth

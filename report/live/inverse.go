@@ -295,10 +295,15 @@ func (c InverseCommissioner) Commission(in *SolveInput, stated []ConductorConfig
 func (InverseCommissioner) fit(in *SolveInput, stated []ConductorConfig) ([]ConductorConfig, error) {
 	p := &inverse.Problem{Points: in.Points, Fields: in.Fields, Phasors: in.Phasors, Sigma: in.Sigma}
 	res, err := inverse.FitLines(p, &inverse.Settings{Count: len(stated)})
-	if err == nil && res.DOF <= 0 {
-		// As many unknowns as readings or more: any lines fit.
+	if n := len(stated); err == nil && res.DOF <= 0 || err != nil && n > 0 && len(p.Points)*readingsPerSensor(p) <= freeLineUnknowns(p, n) {
+		// As many unknowns as readings or more: any lines fit (or the
+		// fit refuses to start). The readings' count does not grow with
+		// more windows: stop until the site file is mended.
+		if res != nil {
+			n = len(res.Sources)
+		}
 		err = &needsSiteError{fmt.Errorf("%d sensors give %d readings, too few for %d free lines (where each runs, its current, and the background field): "+
-			"add sensors, or give the conductors' points, or hold them where they run with model = \"fixed\"", len(p.Points), len(p.Points)*readingsPerSensor(p), len(res.Sources))}
+			"add sensors, or give the conductors' points, or hold them where they run with model = \"fixed\"", len(p.Points), len(p.Points)*readingsPerSensor(p), n)}
 	}
 	var conds []ConductorConfig
 	if err == nil {
@@ -324,9 +329,14 @@ func (InverseCommissioner) fit(in *SolveInput, stated []ConductorConfig) ([]Cond
 			// readings, the free fit's refusal is given with how far the
 			// lines through the site file's points miss them.
 			var m1, m2 *misfitError
+			var site *needsSiteError
 			switch {
 			case aerr.Error() == err.Error():
 				return nil, err
+			case errors.As(aerr, &site) || errors.As(err, &site):
+				// Too few readings for the lines from their points (or
+				// freely): more windows do not add readings.
+				return nil, &needsSiteError{fmt.Errorf("%w (fitted from the site file's points: %v)", err, aerr)}
 			case errors.As(err, &m1) && errors.As(aerr, &m2):
 				if strings.Contains(aerr.Error(), misfitAtSensor) && !strings.Contains(err.Error(), misfitAtSensor) {
 					// The lines through the points find the sensor.
@@ -401,6 +411,16 @@ func clearlyBetter(in *SolveInput, a, b []ConductorConfig) bool {
 
 // readingsPerSensor is the number of real readings one sensor gives: three
 // field components, each a real and an imaginary part for AC.
+// freeLineUnknowns is the unknowns of n free lines fitted to p: where
+// each runs (four), its current, and the background field, each current
+// and background component complex for AC.
+func freeLineUnknowns(p *inverse.Problem, n int) int {
+	if p.Phasors != nil {
+		return 4*n + 2*(n+3)
+	}
+	return 4*n + n + 3
+}
+
 func readingsPerSensor(p *inverse.Problem) int {
 	if p.Phasors != nil {
 		return 6

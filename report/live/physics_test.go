@@ -166,6 +166,9 @@ func unitFieldsNT(a *AssetConfig, pos [3]float64) [][3]float64 {
 	var per [][3]float64
 	for _, c := range a.Conductors {
 		f := inverse.Line{Point: c.Point, Dir: c.Direction}.Field(pos, 1)
+		if c.Kind == "segment" {
+			f = inverse.Segment{A: c.From, B: c.To}.Field(pos, 1)
+		}
 		per = append(per, [3]float64{f[0] * 1e9, f[1] * 1e9, f[2] * 1e9})
 	}
 	return per

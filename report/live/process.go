@@ -653,8 +653,14 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 	if e.Quality == "good" && len(r.missing) > 0 {
 		e.Quality = "partial" // a sensor short of samples or left out: see Missing
 	}
-	if imp := p.implausible(w, r, out); len(imp) > 0 {
-		e.Quality = "implausible"
+	misfit := 0.0 // a degraded window's misfit, times the noise
+	if jred > a.Alarms.MaxChi2 {
+		misfit = math.Sqrt(jred)
+	}
+	if imp, byMisfit := p.implausible(w, r, out, misfit); len(imp) > 0 {
+		if !byMisfit {
+			e.Quality = "implausible"
+		} // else the window stays "degraded": its misfit explains the checks
 		for _, al := range imp {
 			e.Implausible = append(e.Implausible, al.Message)
 		}
@@ -932,9 +938,17 @@ const (
 //     degrees of freedom (chi2Implausible): the residuals are far smaller
 //     than the noise says, which is what readings scaled down by a wrong
 //     unit give (the noise stated in nT, the readings 1000 times too small).
-func (p *processor) implausible(w *window, r *reduced, out *SolveOutput) []Alarm {
+//
+// misfit, above 0 on a degraded window, is how many times the noise the
+// readings miss the held geometry by: the background fitted with the
+// currents then absorbs part of the model's misfit (a bend held as two
+// lines put it at 1.1e5 nT), so a fitted background outside earth_field
+// but within misfitFieldFactor of it is said to be that, not a unit
+// error, and byMisfit is true when every failed check is so explained
+// (the window stays "degraded", the cause listed first).
+func (p *processor) implausible(w *window, r *reduced, out *SolveOutput, misfit float64) (alarms []Alarm, byMisfit bool) {
 	a := p.asset
-	var alarms []Alarm
+	byMisfit = true
 	if a.fieldHi > 0 {
 		level, what := math.NaN(), ""
 		if out.Background != nil {
@@ -953,9 +967,24 @@ func (p *processor) implausible(w *window, r *reduced, out *SolveOutput) []Alarm
 			if level > a.fieldHi {
 				th = a.fieldHi
 			}
-			alarms = append(alarms, p.alarm(w, AlarmImplausible, checkEarthField, level, th,
-				fmt.Sprintf("the Earth's field seen by the sensors (%s) is %.4g nT, outside earth_field %g to %g nT: fields in the wrong unit (sent as nT)? set earth_field = [0, 0] for sensors without the static field",
-					what, level, a.fieldLo, a.fieldHi)))
+			msg := fmt.Sprintf("the Earth's field seen by the sensors (%s) is %.4g nT, outside earth_field %g to %g nT: fields in the wrong unit (sent as nT)? set earth_field = [0, 0] for sensors without the static field",
+				what, level, a.fieldLo, a.fieldHi)
+			if misfit > 0 && out.Background != nil {
+				off := math.Max(level/a.fieldHi, a.fieldLo/level) // times beyond the range
+				if off <= misfitFieldFactor {
+					msg = fmt.Sprintf("the window is degraded (the readings miss the held geometry by %.3g times the noise) and the uniform background fitted with the currents, %.4g nT, is outside earth_field %g to %g nT: "+
+						"the background absorbs the model's misfit, so it is not the Earth's field here; mend the held geometry (see the degraded alarm), after which it reads the Earth's field again",
+						misfit, level, a.fieldLo, a.fieldHi)
+				} else {
+					byMisfit = false
+					msg = fmt.Sprintf("the uniform background fitted with the currents is %.4g nT, %.3g times outside earth_field %g to %g nT, in a degraded window (the readings miss the held geometry by %.3g times the noise): "+
+						"the background absorbs part of the model's misfit, but a level this far off is more likely fields in the wrong unit (sent as nT)? set earth_field = [0, 0] for sensors without the static field",
+						level, off, a.fieldLo, a.fieldHi, misfit)
+				}
+			} else {
+				byMisfit = false
+			}
+			alarms = append(alarms, p.alarm(w, AlarmImplausible, checkEarthField, level, th, msg))
 		}
 	}
 	if a.Noise > 0 && out.DOF > 0 {
@@ -963,12 +992,20 @@ func (p *processor) implausible(w *window, r *reduced, out *SolveOutput) []Alarm
 	}
 	if a.Noise > 0 && out.DOF > 0 && chi2Implausible(out.Chi2, out.DOF) {
 		red := out.Chi2 / float64(out.DOF)
+		byMisfit = false
 		alarms = append(alarms, p.alarm(w, AlarmImplausible, checkChi2, red, maxImplausibleChi2,
 			fmt.Sprintf("the readings stray from the fit by only %.3g times the stated noise of %g nT, far less than noise would: fields in the wrong unit, or the noise overstated? (reduced chi-square %.3g on %d degrees of freedom)",
 				math.Sqrt(red), a.Noise, red, out.DOF)))
 	}
-	return alarms
+	return alarms, byMisfit && len(alarms) > 0
 }
+
+// misfitFieldFactor is how many times beyond earth_field a degraded
+// window's fitted background may lie and still be taken for the model's
+// misfit absorbed (implausible): a unit error puts it a thousand times
+// off (microtesla or picotesla sent as nanotesla), a misfit of a bend or
+// bar near the sensors a few times (rv22a's bend: 1.4 times).
+const misfitFieldFactor = 100
 
 // maxImplausibleChi2 and minChi2Tail bound chi2Implausible.
 const (

@@ -241,6 +241,9 @@ type ConductorConfig struct {
 	// direction (model "commission", where both are optional: see
 	// InverseCommissioner).
 	pointSet, dirSet bool
+	// fromSet and toSet say whether the site file gave from and to
+	// (refused with model "commission", which fits infinite lines).
+	fromSet, toSet bool
 	// heldPair, on a commissioned conductor, numbers (from 1) the
 	// go-and-return pair it was fitted in at the spacing of the site
 	// file's points: the two lines' geometry is one centre line and the
@@ -447,6 +450,8 @@ func ParseSite(name string, data []byte) (*Site, error) {
 			Conductors []struct {
 				Point     *[3]float64 `toml:"point"`
 				Direction *[3]float64 `toml:"direction"`
+				From      *[3]float64 `toml:"from"`
+				To        *[3]float64 `toml:"to"`
 			} `toml:"conductor"`
 		} `toml:"asset"`
 	}
@@ -456,6 +461,7 @@ func ParseSite(name string, data []byte) (*Site, error) {
 				if j < len(s.Assets[i].Conductors) {
 					c := &s.Assets[i].Conductors[j]
 					c.pointSet, c.dirSet = gc.Point != nil, gc.Direction != nil
+					c.fromSet, c.toSet = gc.From != nil, gc.To != nil
 				}
 			}
 		}
@@ -730,6 +736,23 @@ func (a *AssetConfig) validate(dir string) error {
 			// spacing) and which way its current is counted (direction).
 			if c.dirSet && c.Direction == ([3]float64{}) {
 				return fmt.Errorf("conductor %q: direction is zero", c.Name)
+			}
+			// Commissioning fits infinite lines: a segment's kind or
+			// ends would be ignored, and finite bars (a bend, risers)
+			// fitted as lines that miss them.
+			for _, k := range []struct {
+				key string
+				set bool
+			}{{"kind", c.Kind != "" && c.Kind != "line"}, {"from", c.fromSet}, {"to", c.toSet}} {
+				if k.set {
+					what := k.key
+					if k.key == "kind" {
+						what = fmt.Sprintf("kind %q", c.Kind)
+					}
+					return &keyError{header: "[[asset.conductor]]", index: i, key: k.key,
+						err: fmt.Errorf("conductor %q: %s: model \"commission\" fits infinite lines (give point and direction, or neither); "+
+							"hold finite bars (a bend, risers) where they run with model = \"fixed\" and kind = \"segment\" (from and to at their ends)", c.Name, what)}
+				}
 			}
 			if c.pointSet != a.Conductors[0].pointSet {
 				with, without := a.Conductors[0].Name, c.Name

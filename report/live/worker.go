@@ -88,11 +88,14 @@ type assetWorker struct {
 	pendDur float64
 	// pendReds are the held windows' reduced readings, in their order;
 	// misfits counts the commissioning fits in a row that failed other
-	// than for want of current; waiting says the asset waits for current
-	// to commission (Service.waiting).
-	pendReds []*reduced
-	misfits  int
-	waiting  bool
+	// than for want of current; waiting says the asset's endpoint shows
+	// a commissioning state (Service.waiting: waiting for current, or
+	// failing); failAlarmed that the run of failed fits was alarmed
+	// (commissionFailing).
+	pendReds    []*reduced
+	misfits     int
+	waiting     bool
+	failAlarmed bool
 	// lastData is the wall time of the last batch filed or held (or of
 	// taking the asset); silent says the asset's silent alarm is raised.
 	lastData time.Time
