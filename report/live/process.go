@@ -605,6 +605,10 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 		if sub, bad, why, reds := p.isolate(r); sub != nil {
 			if o2, err2 := p.est.Solve(&sub.in); err2 == nil && len(o2.Current) == len(p.names) && nonFiniteOutput(o2) == "" {
 				frozen := r.frozen
+				coil := map[string]string{}
+				for _, name := range bad {
+					coil[name] = p.coilHint(r, name, o2)
+				}
 				r, out = sub, o2
 				for k, name := range bad {
 					if frozen[name] {
@@ -614,8 +618,11 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 						continue
 					}
 					r.missing[name] = "inconsistent with the other sensors' readings (knocked, moved, or its offset changed?): " + why[k]
+					if coil[name] != "" {
+						r.missing[name] = "inconsistent with the other sensors' readings (knocked, moved, its offset changed, or a coil's voltages?): " + why[k]
+					}
 					alarms = append(alarms, p.alarm(w, AlarmInconsistent, name, reds[k], a.Alarms.MaxChi2,
-						fmt.Sprintf("sensor %s's reading is inconsistent with the other sensors': %s; the window is solved without it. Check the sensor (turned or moved on its mount, offset drift)", name, why[k])))
+						fmt.Sprintf("sensor %s's reading is inconsistent with the other sensors': %s; the window is solved without it. Check the sensor (turned or moved on its mount, offset drift)%s", name, why[k], coil[name])))
 				}
 				e.Missing, e.Sensors, e.Samples = r.missing, len(r.used), r.samples
 				jred = judge(r, out)
