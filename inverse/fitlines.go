@@ -1776,6 +1776,17 @@ const anglesUndetermined = "angles not determined by the traverse"
 // after which the next count is tried.
 const collapsedNote = "two lines collapsed onto one another (a line dipole); more lines tried"
 
+// CollapsedNote begins ModelScore.Rejected for a count refused because two of
+// its lines collapsed onto one another (collapsedNote): package report reads a
+// large fall of the misfit at such a count as a local field the fit missed.
+const CollapsedNote = collapsedNote
+
+// CoincideWords end ModelScore.Rejected for a count refused because two of its
+// lines coincide within their uncertainty (the guard): like a collapsed pair,
+// such lines stand for one line and a local field beside it, not for two
+// conductors.
+const CoincideWords = "coincide within their uncertainty"
+
 // collapsed reports whether two of sp's lines at x lie on one another: within 1% of
 // their distance below the sensors in offset and height, and 0.01 rad in azimuth. Such
 // a pair carrying opposite currents makes the field of a line dipole, a valley the
@@ -2375,7 +2386,7 @@ func (f *fitter) guardBut(c *candidate, gain float64, skip int) (why string, wea
 			sa := math.Hypot(a.DepthSigma, a.OffsetSigma)
 			sb := math.Hypot(b.DepthSigma, b.OffsetSigma)
 			if d < math.Max(0.01, 3*math.Hypot(sa, sb)) {
-				return fmt.Sprintf("lines %d and %d coincide within their uncertainty", i+1, j+1), -1
+				return fmt.Sprintf("lines %d and %d %s", i+1, j+1, CoincideWords), -1
 			}
 		}
 	}

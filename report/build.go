@@ -998,6 +998,14 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute boo
 			}
 			g.Problem += w
 		}
+		// A local field the lines absorbed, which a refused line dipole
+		// takes most of (linedipole.go): the fit is poor.
+		if w := lineDipoleProblem(res, refSigma); w != "" && !ac {
+			if g.Problem != "" {
+				g.Problem += "; "
+			}
+			g.Problem += w
+		}
 	}
 	if f.Dipole && g.Problem == "" && f.object == nil {
 		// The caller's verdict, without a fitted object to show for it.

@@ -54,7 +54,7 @@ func TestSummaryCautions(t *testing.T) {
 	printFindings(&buf, doc)
 	cautionsAfter(t, "demo", buf.String(), "  warning  cover is less", "")
 	buf.Reset()
-	printSummary(&buf, doc, time.Second)
+	printSummary(&buf, doc, time.Second, 0)
 	cautionsAfter(t, "locate", buf.String(), "  warning  cover is less", "")
 
 	_, path := scenario(t, "two-conductors.toml")

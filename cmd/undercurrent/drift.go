@@ -65,24 +65,9 @@ func driftWarning(o *locateOptions, sv *survey) string {
 	if o.base != "" || sv.ac {
 		return ""
 	}
-	var gs []driftGroup
-	for _, g := range sv.groups {
-		res := g.res
-		if res == nil || len(res.Sources) == 0 || len(g.stamps) != len(g.fields) || len(g.fields) < minDiffReadings || !(res.Sigma > 0) {
-			continue
-		}
-		lo, hi, sum := math.Inf(1), math.Inf(-1), 0.0
-		for _, t := range g.stamps {
-			lo, hi, sum = math.Min(lo, t), math.Max(hi, t), sum+t
-		}
-		if !(hi > lo) || math.IsInf(hi-lo, 0) {
-			return "" // no times (or not finite)
-		}
-		noise := g.measuredNoise(false)
-		if !(noise > 0) {
-			noise = res.Sigma
-		}
-		gs = append(gs, driftGroup{g: g, mean: sum / float64(len(g.stamps)), span: hi - lo, noise: noise})
+	gs, ok := driftGroups(sv)
+	if !ok {
+		return ""
 	}
 	n := len(gs)
 	if n < driftMinGroups {
@@ -170,6 +155,31 @@ func driftWarning(o *locateOptions, sv *survey) string {
 	perMin := func(v float64) float64 { return 60 * v }
 	return fmt.Sprintf("no base station log was given (--base), and the Earth's field drifted while the traverses were walked: the groups' backgrounds change steadily through the survey, by %.3g nT a minute (east %+.3g, north %+.3g, up %+.3g), %.3g nT over a traverse's %.3g s, %.3g times what a traverse's readings resolve, and with that drift taken out of the readings the fits miss them by less (chi-square lower by %.3g over %d groups); the fits take the drift along each traverse for part of the conductor's field (the error changing sign with the walking direction), and taking it out moves a conductor's current, depth or offset by up to %.2g times its uncertainty, so the results are off by more than their uncertainties say; log a base station and give it with --base",
 		perMin(speed), perMin(rate[0]), perMin(rate[1]), perMin(rate[2]), speed*T, T, speed*T/resolved, gain, n, shift)
+}
+
+// driftGroups returns the DC groups fitted with a line and enough readings
+// for the drift checks, with their times; ok is false when a group's
+// readings have no times (or not finite ones).
+func driftGroups(sv *survey) (gs []driftGroup, ok bool) {
+	for _, g := range sv.groups {
+		res := g.res
+		if res == nil || len(res.Sources) == 0 || len(g.stamps) != len(g.fields) || len(g.fields) < minDiffReadings || !(res.Sigma > 0) {
+			continue
+		}
+		lo, hi, sum := math.Inf(1), math.Inf(-1), 0.0
+		for _, t := range g.stamps {
+			lo, hi, sum = math.Min(lo, t), math.Max(hi, t), sum+t
+		}
+		if !(hi > lo) || math.IsInf(hi-lo, 0) {
+			return nil, false // no times (or not finite)
+		}
+		noise := g.measuredNoise(false)
+		if !(noise > 0) {
+			noise = res.Sigma
+		}
+		gs = append(gs, driftGroup{g: g, mean: sum / float64(len(g.stamps)), span: hi - lo, noise: noise})
+	}
+	return gs, true
 }
 
 // driftShiftK is the least move, in sigmas, of a strongest line's current,

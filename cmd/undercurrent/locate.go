@@ -105,6 +105,12 @@ type locateOptions struct {
 	// buildProgress, when not nil, is told how far report.Build's search
 	// for magnetised objects has got (stageline.go's objectStages).
 	buildProgress report.ProgressFunc
+
+	// walked is set by runLocate: the time from the first to the last
+	// DC reading of the groups, s; 0 for an AC run or a log without
+	// times. The summary says by it whether a run without a base log
+	// lasted long enough for the Earth's drift to matter.
+	walked float64
 }
 
 // resultFiles are the files locate writes into its output directory.
@@ -495,7 +501,7 @@ Examples:
 				}
 				return report.WriteJSON(stdout, doc)
 			}
-			printSummary(stdout, doc, time.Since(start))
+			printSummary(stdout, doc, time.Since(start), o.walked)
 			if o.out != "" {
 				fmt.Fprintf(stdout, "results in %s: %s\n", o.out, strings.Join(resultFiles, ", "))
 				if w := localGeoJSONWarning(doc); w != "" {
@@ -652,6 +658,10 @@ type survey struct {
 	// baseCheck holds what the comparison with the base record's field
 	// needs once the groups are fitted (basefield.go).
 	baseCheck *baseCheck
+	// baseRover is the first base-corrected log's times (their span) and
+	// how they were written, for naming the log a base record's offset
+	// lies in (baselag.go).
+	baseRover *ingest.Samples
 	// swings is the check for a sensor turning within the groups
 	// (sensorturn.go), made once they are fitted.
 	swings *swing
@@ -736,7 +746,34 @@ func runLocate(ctx context.Context, o *locateOptions, logs []string, progress io
 	if err := fitGroups(ctx, o, sv, progress); err != nil {
 		return nil, err
 	}
+	// A base record paired at the wrong time (baselag.go).
+	w, err := baseLagCheck(o, sv)
+	if err != nil {
+		return nil, withWarnings(err, sv.alerts, sv.warnings)
+	}
+	if w != "" {
+		sv.alerts = append(sv.alerts, w)
+	}
+	o.walked = walkedSpan(sv)
 	return buildDocument(ctx, o, sv)
+}
+
+// walkedSpan is the time from the first to the last DC reading of the
+// groups, s; 0 for an AC run or readings without times.
+func walkedSpan(sv *survey) float64 {
+	if sv.ac {
+		return 0
+	}
+	lo, hi := math.Inf(1), math.Inf(-1)
+	for _, g := range sv.groups {
+		for _, t := range g.stamps {
+			lo, hi = math.Min(lo, t), math.Max(hi, t) // NaN (no time) leaves them
+		}
+	}
+	if !(hi > lo) || math.IsInf(hi-lo, 0) {
+		return 0
+	}
+	return hi - lo
 }
 
 // readSurvey reads the logs, applies the corrections, demodulates and
@@ -1088,6 +1125,10 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 				return nil, err
 			}
 			baseNotes = append(baseNotes, baseSummary(path, rep))
+			if sv.baseRover == nil {
+				lo, hi := finiteSpan(s.Time)
+				sv.baseRover = &ingest.Samples{Time: []float64{lo, hi}, NaiveTime: s.NaiveTime, TimeSaidUTC: s.TimeSaidUTC, Source: s.Source, Meta: s.Meta}
+			}
 			if w := noteBaseGaps(sv, o, s, rep); w != "" {
 				sv.alerts = append(sv.alerts, path+": "+w)
 			}
@@ -1430,26 +1471,116 @@ var baseFlagHint = regexp.MustCompile(`(^|[^-a-z])--(column|unit) `)
 // review, the hint had told the user to put an offset into the
 // observatory's times, with the zone's sign turned), or either when both
 // can; when neither can, a clock set to a zone's time.
+//
+// No hint when the two logs overlap in part, when the survey runs past a
+// day file's end at 00:00 UTC, or when
+// shifts hours apart would all cover it: the record is then short of
+// readings, not off by a zone. Found in review: a walk from 21:30 to
+// 01:58 UTC given only the first day's file, 57% of it inside the record,
+// was told its logger was on UTC+02:00, though any shift from 2 to about
+// 20 h would have covered it.
 func zoneShiftHint(base, rover *ingest.Samples) string {
-	span := func(t []float64) (lo, hi float64) {
-		lo, hi = math.Inf(1), math.Inf(-1)
-		for _, v := range t {
-			if !math.IsNaN(v) && !math.IsInf(v, 0) {
-				lo, hi = math.Min(lo, v), math.Max(hi, v)
-			}
-		}
-		return lo, hi
-	}
-	blo, bhi := span(base.Time)
-	rlo, rhi := span(rover.Time)
+	blo, bhi := finiteSpan(base.Time)
+	rlo, rhi := finiteSpan(rover.Time)
 	if !(bhi > blo) || !(rhi >= rlo) || rlo < 1e8 {
 		return ""
 	}
-	// The civil zones' offsets from UTC, minutes: the whole hours from
-	// -12 to +14 and the zones a part of an hour off (from memory of the
-	// time-zone database: -09:30, -03:30, -02:30, +03:30, +04:30, +05:30,
-	// +05:45, +06:30, +08:45, +09:30, +10:30, +12:45, +13:45). A shift
-	// that no zone has is a clock set wrong, not a zone left out.
+	if blo <= rhi && bhi >= rlo {
+		return "" // in part inside the record: readings missing, not a zone
+	}
+	if dayFileEdge(base.Time, rhi) {
+		return ""
+	}
+	var covering []int
+	for _, m := range civilShifts() {
+		sh := -60 * float64(m)
+		if blo+sh <= rlo && bhi+sh >= rhi {
+			covering = append(covering, m)
+		}
+	}
+	if len(covering) == 0 {
+		return ""
+	}
+	lo, hi := covering[0], covering[0]
+	for _, m := range covering {
+		lo, hi = min(lo, m), max(hi, m)
+	}
+	if hi-lo > zoneHintSpread {
+		return "" // many offsets would do: none is told
+	}
+	for _, m := range covering {
+		if h := zoneWords(base, rover, m, "would cover it"); h != "" {
+			return h
+		}
+	}
+	return ""
+}
+
+// zoneHintSpread is the widest spread, minutes, of the shifts that would
+// all cover a survey for one of them to be named: the zones next to one
+// another (an hour, or the part-hour zones between two whole hours).
+const zoneHintSpread = 60
+
+// finiteSpan returns the least and greatest finite value of t (+Inf, -Inf
+// when none).
+func finiteSpan(t []float64) (lo, hi float64) {
+	lo, hi = math.Inf(1), math.Inf(-1)
+	for _, v := range t {
+		if finite(v) {
+			lo, hi = math.Min(lo, v), math.Max(hi, v)
+		}
+	}
+	return lo, hi
+}
+
+// dayFileEdge reports whether the survey's span [rlo, rhi] runs past the
+// end of the base record bt where that end is a day's end at 00:00 UTC
+// (its last reading within dayEdgeSlack of it): a day file, whose next
+// day holds the rest. (A survey before a day file's start is left to the
+// spread of the shifts: a day file's 24 hours cover a survey before it
+// at many; a file cut short, at one.)
+func dayFileEdge(bt []float64, rhi float64) bool {
+	_, bhi := finiteSpan(bt)
+	const day = 86400
+	next := math.Ceil(bhi/day) * day
+	return rhi > bhi && next-bhi <= dayEdgeSlack
+}
+
+// dayEdgeSlack is how far, s, a base record's first or last reading may
+// lie from 00:00 UTC for it to be a day file's edge: a minute file's last
+// reading is at 23:59, an hourly file's at 23:00.
+const dayEdgeSlack = 3600
+
+// civilShifts returns the civil zones' offsets from UTC, minutes, with
+// their opposites, the smallest first (a positive one before its
+// opposite): the shifts of one log against the other that a time zone
+// gives.
+func civilShifts() []int {
+	civil, has := civilZones()
+	abs := func(m int) int {
+		if m < 0 {
+			return -m
+		}
+		return m
+	}
+	var shifts []int
+	for _, m := range civil {
+		shifts = append(shifts, m)
+		if !has[-m] {
+			shifts = append(shifts, -m)
+		}
+	}
+	sort.SliceStable(shifts, func(i, j int) bool { return abs(shifts[i]) < abs(shifts[j]) })
+	return shifts
+}
+
+// civilZones returns the civil zones' offsets from UTC, minutes, the
+// smallest first (east before west), and the set of them: the whole hours
+// from -12 to +14 and the zones a part of an hour off (from memory of the
+// time-zone database: -09:30, -03:30, -02:30, +03:30, +04:30, +05:30,
+// +05:45, +06:30, +08:45, +09:30, +10:30, +12:45, +13:45). A shift that
+// no zone has is a clock set wrong, not a zone left out.
+func civilZones() ([]int, map[int]bool) {
 	civil := []int{-570, -210, -150, 210, 270, 330, 345, 390, 525, 570, 630, 765, 825}
 	for h := -12; h <= 14; h++ {
 		if h != 0 {
@@ -1470,6 +1601,17 @@ func zoneShiftHint(base, rover *ingest.Samples) string {
 		a, b := abs(civil[i]), abs(civil[j])
 		return a < b || a == b && civil[i] > civil[j]
 	})
+	return civil, has
+}
+
+// zoneWords words the hint for a shift of m minutes of one log against
+// the other (the base's times read m minutes late, its local times of
+// zone UTC+m, or the survey's read -m minutes late, zone UTC-m): "the
+// base record " + what + " if its times were ...", naming the log whose
+// times can be the ones off; "" when neither can be in a zone that
+// exists.
+func zoneWords(base, rover *ingest.Samples, m int, what string) string {
+	_, has := civilZones()
 	zone := func(m int) string {
 		zs := "+"
 		if m < 0 {
@@ -1493,70 +1635,54 @@ func zoneShiftHint(base, rover *ingest.Samples) string {
 	local := func(who string, m int, t0 float64) string {
 		return fmt.Sprintf("are %s times the local times of a zone UTC%s written without their offset (and so read as UTC)? If so, write the offset into them (such as %s%s)", who, zone(m), stamp(t0), zone(m))
 	}
-	// Every shift a civil zone gives one log or the other: the base's
-	// times read m minutes late (its local times of zone UTC+m), or the
-	// survey's read -m minutes late (zone UTC-m), the same shift of one
-	// against the other; the smallest first.
-	var shifts []int
-	for _, m := range civil {
-		shifts = append(shifts, m)
-		if !has[-m] {
-			shifts = append(shifts, -m)
-		}
-	}
-	sort.SliceStable(shifts, func(i, j int) bool { return abs(shifts[i]) < abs(shifts[j]) })
 	roverName := "the survey log's"
 	if rover.Source != "" {
 		roverName = rover.Source + "'s"
 	}
+	blo, _ := finiteSpan(base.Time)
+	rlo, _ := finiteSpan(rover.Time)
 	iaga := base.Meta["elements"] != ""
-	for _, m := range shifts {
-		sh := -60 * float64(m)
-		if !(blo+sh <= rlo && bhi+sh >= rhi) {
-			continue
-		}
-		// Which log's times can be the ones off: those written without
-		// an offset, in a zone that exists.
-		bl, rl := base.NaiveTime && has[m], rover.NaiveTime && has[-m]
-		h := math.Abs(sh) / 3600
-		bdir, rdir := "later", "earlier"
-		if sh < 0 {
-			bdir, rdir = "earlier", "later"
-		}
-		switch {
-		case bl && rl:
-			return fmt.Sprintf("the base record would cover it if its times were %g h %s, or the survey's %g h %s, a time zone's offset: both logs give times without a UTC offset, so either can be local times read as UTC: %s, or %s",
-				h, bdir, h, rdir, local(roverName, -m, rlo), local("the base record's", m, blo))
-		case bl:
-			return fmt.Sprintf("the base record would cover it if its times were %g h %s, a time zone's offset: %s; the survey's times cannot be the ones off (%s)",
-				h, bdir, local("the base record's", m, blo), utcWhy(rover))
-		case rl:
-			return fmt.Sprintf("the base record would cover it if the survey's times were %g h %s, a time zone's offset: %s; the base record's times cannot be the ones off (%s)",
-				h, rdir, local(roverName, -m, rlo), utcWhy(base))
-		case base.NaiveTime || rover.NaiveTime:
-			// The log that can be local would be in no zone: a clock
-			// set wrong, no hint.
-			continue
-		}
-		// Neither log's times can be local times read as UTC: a clock
-		// set to a zone's time (a logger writing seconds since 1970 from
-		// a clock on local time).
-		var who string
-		switch {
-		case has[-m] && (iaga || !has[m]):
-			who = fmt.Sprintf("the survey logger's, set to UTC%s", zone(-m))
-		case !has[-m]:
-			who = fmt.Sprintf("the base logger's, set to UTC%s", zone(m))
-		default:
-			who = fmt.Sprintf("the base logger's set to UTC%s, or the survey logger's to UTC%s", zone(m), zone(-m))
-		}
-		if iaga && !has[-m] {
-			continue
-		}
-		return fmt.Sprintf("the base record would cover it if the survey's times were %g h %s, a time zone's offset, but neither log's times can be local times read as UTC (the base record's: %s; the survey's: %s): is a clock set to a zone's time instead (%s)? If so, correct that log's times by the offset",
-			h, rdir, utcWhy(base), utcWhy(rover), who)
+	sh := -60 * float64(m)
+	// Which log's times can be the ones off: those written without an
+	// offset, in a zone that exists.
+	bl, rl := base.NaiveTime && has[m], rover.NaiveTime && has[-m]
+	h := math.Abs(sh) / 3600
+	bdir, rdir := "later", "earlier"
+	if sh < 0 {
+		bdir, rdir = "earlier", "later"
 	}
-	return ""
+	switch {
+	case bl && rl:
+		return fmt.Sprintf("the base record %s if its times were %g h %s, or the survey's %g h %s, a time zone's offset: both logs give times without a UTC offset, so either can be local times read as UTC: %s, or %s",
+			what, h, bdir, h, rdir, local(roverName, -m, rlo), local("the base record's", m, blo))
+	case bl:
+		return fmt.Sprintf("the base record %s if its times were %g h %s, a time zone's offset: %s; the survey's times cannot be the ones off (%s)",
+			what, h, bdir, local("the base record's", m, blo), utcWhy(rover))
+	case rl:
+		return fmt.Sprintf("the base record %s if the survey's times were %g h %s, a time zone's offset: %s; the base record's times cannot be the ones off (%s)",
+			what, h, rdir, local(roverName, -m, rlo), utcWhy(base))
+	case base.NaiveTime || rover.NaiveTime:
+		// The log that can be local would be in no zone: a clock set
+		// wrong, no hint.
+		return ""
+	}
+	// Neither log's times can be local times read as UTC: a clock set to
+	// a zone's time (a logger writing seconds since 1970 from a clock on
+	// local time).
+	var who string
+	switch {
+	case has[-m] && (iaga || !has[m]):
+		who = fmt.Sprintf("the survey logger's, set to UTC%s", zone(-m))
+	case !has[-m]:
+		who = fmt.Sprintf("the base logger's, set to UTC%s", zone(m))
+	default:
+		who = fmt.Sprintf("the base logger's set to UTC%s, or the survey logger's to UTC%s", zone(m), zone(-m))
+	}
+	if iaga && !has[-m] {
+		return ""
+	}
+	return fmt.Sprintf("the base record %s if the survey's times were %g h %s, a time zone's offset, but neither log's times can be local times read as UTC (the base record's: %s; the survey's: %s): is a clock set to a zone's time instead (%s)? If so, correct that log's times by the offset",
+		what, h, rdir, utcWhy(base), utcWhy(rover), who)
 }
 
 // baseNoVerticalError refuses an IAGA-2002 base record that reports no
@@ -2162,6 +2288,8 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 	}
 	if w := driftWarning(o, sv); w != "" {
 		head.Warnings = append(head.Warnings, w)
+	} else if w := curvedDriftWarning(o, sv); w != "" {
+		head.Warnings = append(head.Warnings, w)
 	}
 	if w := wanderWarning(sv); w != "" {
 		// The fits told the frequency's offset from the walk's: the
@@ -2603,6 +2731,27 @@ func sourceColumns(doc *report.Document, g *report.Group, i int) (cur, dep strin
 	return sourceCurrent(g.Sources[i]), report.PlusMinus(depth, sigma)
 }
 
+// baseDriftSpan is the least time, s, the DC readings of a run without a
+// base correction span for the summary to say that none was applied: over
+// half an hour the Earth's field changes by a few nT on a quiet day and by
+// tens on a disturbed one.
+const baseDriftSpan = 1800
+
+// baseLine is the summary's line on the base-station correction: what it
+// removed, as results.json's base_station says; or, in a DC run spanning
+// baseDriftSpan or more without one, that none was applied; "" otherwise.
+// Before, the summary read the same with a base correction as without
+// (found in review).
+func baseLine(doc *report.Document, walked float64) string {
+	if b := doc.BaseStation; b != nil {
+		return fmt.Sprintf("base-station correction from %s: %s", b.File, b.Summary)
+	}
+	if doc.Signal.Mode == report.SignalAC || !(walked >= baseDriftSpan) {
+		return ""
+	}
+	return fmt.Sprintf("base-station correction: none applied; the readings span %s, over which the Earth's own field changes by a few nT on a quiet day and by tens on a disturbed one, and that change is in them (a base station log given with --base takes it out)", hoursWords(walked))
+}
+
 // failedFit fills the current column of a failed fit in the terminal's
 // table, whose depth and cover read "-".
 const failedFit = "fit failed, no value"
@@ -2620,8 +2769,9 @@ func robustGroups(doc *report.Document) int {
 }
 
 // printSummary prints the groups and findings for a person, then the
-// cautions.
-func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
+// cautions. walked is the time the DC readings span, s (0 when unknown):
+// it decides whether a run without a base correction says so.
+func printSummary(w io.Writer, doc *report.Document, took time.Duration, walked float64) {
 	ok, readings := soundGroups(doc)
 	unit := "readings"
 	if doc.Signal.Mode == report.SignalAC {
@@ -2642,6 +2792,9 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration) {
 	}
 	fmt.Fprintf(w, "fitted %d group(s), %d %s, in %.2f s: %s\n",
 		len(doc.Groups), readings, unit, took.Seconds(), counts)
+	if l := baseLine(doc, walked); l != "" {
+		fmt.Fprintln(w, l)
+	}
 	ref := "below the sensors' mean height"
 	if doc.DepthReference.PerGroup {
 		ref = "below each group's own sensors (their mean height, or with --sensor-height their height over each line where the logged heights differ), not one height"

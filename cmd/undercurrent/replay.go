@@ -38,6 +38,9 @@ type replayOptions struct {
 	tlsCA, tlsCert, tlsKey, creds string
 	wait                          time.Duration
 	read                          readFlags
+	// runs holds the log put in time order on disk (--time-order any),
+	// nil to read the log itself.
+	runs *sortedRuns
 }
 
 func init() {
@@ -72,8 +75,11 @@ cannot tell.
 The log is read twice, so that it need not be held whole: once to check it
 and count its batches (nothing is sent from a log refused), then to send
 its batches as they are cut. A log whose sensors' rows follow one
-another instead of running together in time, or one read with
---time-order any (sorted in memory), is held about whole.
+another instead of running together in time is read once per sensor
+and the reads merged by time, in bounded memory too; one read with
+--time-order any is first put in time order on disk, in sorted runs in
+a folder of the system's temporary folder ($TMPDIR, 52 bytes a row),
+removed when the replay ends or is interrupted.
 
 Replay reads the data stream's state and waits for the broker's
 acknowledgement of every batch (JetStream), so its account must be allowed
@@ -114,7 +120,7 @@ README.md):
 			o.read.add(fs)
 			o.read.addMissing(fs)
 			// The broker needs each sensor's readings in order, not the
-			// whole log's (replayBatches).
+			// whole log's (scanReplay).
 			o.read.timeOrder = "per-group"
 			fs.Lookup("time-order").DefValue = "per-group"
 		},
@@ -294,27 +300,13 @@ const replayAheadMargin = time.Minute
 
 // replayLog reads the log for sending: its batches' source, the first
 // time of its first batch to send and its last time, and a function that
-// stops the source's read. Its warnings go to stdout, and progress to a
-// terminal's stderr. A log read with --time-order any is read whole into
-// memory (replayBatches), to be put in time order; any other log is read
-// twice (scanReplay, replaySource), to be sent in bounded memory.
-func replayLog(ctx context.Context, o *replayOptions, fs *pflag.FlagSet, path string, stdout, stderr io.Writer) (*broker.ReplaySource, float64, float64, func(), error) {
-	if fs != nil && fs.Changed("time-order") {
-		if order, _ := ingest.ParseTimeOrder(o.read.timeOrder); order == ingest.TimeAnyOrder {
-			batches, warns, err := replayBatches(ctx, o, fs, path)
-			if err != nil {
-				return nil, 0, 0, nil, err
-			}
-			for _, w := range warns {
-				fmt.Fprintf(stdout, "warning: %s\n", w)
-			}
-			if err := checkBatchBytes(path, batches, o.format, o.maxBytes, o.batch); err != nil {
-				return nil, 0, 0, nil, err
-			}
-			last := batches[len(batches)-1]
-			return broker.SliceSource(batches), batches[0].Time[0], last.Time[len(last.Time)-1], func() {}, nil
-		}
-	}
+// stops the source's read (and removes a sorted log's runs). Its warnings
+// go to stdout, and progress to a terminal's stderr. The log is read twice
+// (scanReplay, replaySource), to be sent in bounded memory; a log read
+// with --time-order any is first put in time order in runs on disk
+// (sortLog), which both reads then merge.
+func replayLog(ctx context.Context, o *replayOptions, fs *pflag.FlagSet, path string, stdout, stderr io.Writer) (_ *broker.ReplaySource, _, _ float64, _ func(), err error) {
+	o.runs = nil
 	opts, err := o.read.options(fs)
 	if err != nil {
 		return nil, 0, 0, nil, err
@@ -324,6 +316,20 @@ func replayLog(ctx context.Context, o *replayOptions, fs *pflag.FlagSet, path st
 	}
 	if fs == nil || !fs.Changed("time-order") {
 		opts = append(opts, ingest.WithTimeOrder(ingest.TimeOrderedPerGroup))
+	} else if order, _ := ingest.ParseTimeOrder(o.read.timeOrder); order == ingest.TimeAnyOrder {
+		progress, done := rowProgress(stderr, "sorting")
+		runs, err := o.sortLog(ctx, path, append(opts[:len(opts):len(opts)], progress))
+		done()
+		if err != nil {
+			return nil, 0, 0, nil, err
+		}
+		o.runs = runs
+		defer func() {
+			if err != nil {
+				runs.remove()
+				o.runs = nil
+			}
+		}()
 	}
 	progress, done := rowProgress(stderr, "checking")
 	sc, err := o.scanReplay(ctx, path, append(opts[:len(opts):len(opts)], progress), nil, 0)
@@ -348,89 +354,21 @@ func replayLog(ctx context.Context, o *replayOptions, fs *pflag.FlagSet, path st
 	if err != nil {
 		return nil, 0, 0, nil, err
 	}
+	if runs := o.runs; runs != nil {
+		readStop := stop
+		stop = func() {
+			readStop()
+			runs.remove()
+			o.runs = nil
+		}
+	}
 	return src, sc.first, sc.last, stop, nil
 }
 
-// replayBatches reads the log and splits it into the sensors' batches.
-//
-// The live pipeline needs each sensor's readings in time order, one per
-// time; rows of different sensors may interleave or follow one another.
-// So replay's default time order is per-group (the group column names the
-// sensor), and --time-order ordered or any may be given: with any, the
-// rows are put in time order (a stable sort) with a warning. A sensor
-// with two readings at one time is refused here, naming the data rows,
-// before broker.SplitSamples would refuse it in its own words.
-func replayBatches(ctx context.Context, o *replayOptions, fs *pflag.FlagSet, path string) ([]*broker.Batch, []string, error) {
-	opts, err := o.read.options(fs)
-	if err != nil {
-		return nil, nil, err
-	}
-	if err := o.read.checkIAGA("LOG", path); err != nil {
-		return nil, nil, err
-	}
-	order := ingest.TimeOrderedPerGroup
-	if fs != nil && fs.Changed("time-order") {
-		order, _ = ingest.ParseTimeOrder(o.read.timeOrder) // checked by options
-	} else {
-		opts = append(opts, ingest.WithTimeOrder(order))
-	}
-	s, warns, err := o.read.readLog(ctx, path, opts, false)
-	if err != nil {
-		return nil, nil, err
-	}
-	orig := make([]int, s.Len())
-	for i := range orig {
-		orig[i] = i
-	}
-	if order == ingest.TimeAnyOrder {
-		var back int
-		if back, orig = sortByTime(s); back > 0 {
-			warns = append(warns, fmt.Sprintf("%s: time goes backwards at %s (--time-order any): the rows were put in time order for the live pipeline", path, plural(back, "row")))
-		}
-	}
-	if err := repeatedTimes(path, s, o.sensor, orig); err != nil {
-		return nil, nil, err
-	}
-	batches, err := broker.SplitSamples(s, o.asset, o.sensor, o.batch.Seconds())
-	if err != nil {
-		return nil, nil, err
-	}
-	if w := fieldOverWarning(path, batches); w != "" {
-		warns = append(warns, w)
-	}
-	return batches, warns, nil
-}
-
-// fieldOverWarning warns about readings whose |B| is above the 0.1 T that
-// serve takes (broker.MaxFieldNT): serve refuses each batch holding one
-// to uc.dlq.malformed, so its window lacks that sensor's samples. The
-// batches are sent all the same, as a gateway would send them.
-func fieldOverWarning(path string, batches []*broker.Batch) string {
-	var n, nb int
-	first := ""
-	for _, b := range batches {
-		k := b.FieldOver()
-		if k == 0 {
-			continue
-		}
-		if nb == 0 {
-			for i := range b.Bx {
-				if m := math.Hypot(math.Hypot(b.Bx[i], b.By[i]), b.Bz[i]); m > broker.MaxFieldNT {
-					first = fmt.Sprintf("sensor %s at time %s, |B| = %.4g nT", b.Sensor, strconv.FormatFloat(b.Time[i], 'f', -1, 64), m)
-					break
-				}
-			}
-		}
-		n += k
-		nb++
-	}
-	if n == 0 {
-		return ""
-	}
-	return fieldOverText(path, n, nb, first)
-}
-
-// fieldOverText words fieldOverWarning's warning: n readings above the
+// fieldOverText words the warning about readings whose |B| is above the
+// 0.1 T that serve takes (broker.MaxFieldNT; serve refuses each batch
+// holding one to uc.dlq.malformed, but they are sent all the same, as a
+// gateway would send them): n readings above the
 // bound in nb batches, first the first of them.
 func fieldOverText(path string, n, nb int, first string) string {
 	nbText := "1 batch"
@@ -439,37 +377,6 @@ func fieldOverText(path string, n, nb int, first string) string {
 	}
 	return fmt.Sprintf("%s: %s with |B| above 0.1 T (%g nT), which no magnetometer reading of a buried conductor gives (a corrupt value or a wrong unit; the first: %s): serve refuses the %s holding them to uc.dlq.malformed, and their windows go without those samples",
 		path, plural(n, "reading"), float64(broker.MaxFieldNT), first, nbText)
-}
-
-// repeatedTimes refuses a sensor with two readings at one time (after s
-// was put in time order, orig giving each row's place in the file), which
-// the live pipeline cannot take. Rows are counted from 1 among the data
-// rows (without the header, comment lines and rows dropped by
-// --drop-missing); times are printed in full.
-func repeatedTimes(path string, s *ingest.Samples, sensor string, orig []int) error {
-	last := map[string]int{}
-	for i := range s.Len() {
-		if math.IsNaN(s.Time[i]) || math.IsNaN(s.Bx[i]) || math.IsNaN(s.By[i]) || math.IsNaN(s.Bz[i]) {
-			continue // broker.SplitSamples skips incomplete rows
-		}
-		name := sensor
-		if s.Group != nil {
-			if sensor != "" && s.Group[i] != sensor {
-				continue
-			}
-			name = s.Group[i]
-		}
-		if j, ok := last[name]; ok && s.Time[i] == s.Time[j] {
-			a, b := min(orig[i], orig[j])+1, max(orig[i], orig[j])+1
-			who := ""
-			if s.Group != nil {
-				who = fmt.Sprintf(" of sensor %q", name)
-			}
-			return fmt.Errorf("%s: data rows %d and %d%s have the same time, %s: the live pipeline takes one reading per sensor at a time; remove the repeated row", path, a, b, who, strconv.FormatFloat(s.Time[i], 'f', -1, 64))
-		}
-		last[name] = i
-	}
-	return nil
 }
 
 // waitForStream waits until the data stream exists (serve creates it).

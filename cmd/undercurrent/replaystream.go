@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"iter"
 	"math"
+	"os"
 	"strconv"
 	"strings"
 
@@ -21,7 +22,10 @@ import (
 // per sensor only the batch being cut and the largest so far; then
 // replaySource reads it again, cutting and sending as it goes
 // (broker.Batcher), holding the batches of about one batch duration, more
-// for a log whose sensors' rows lag each other (see scanReplay's lag).
+// for a log whose sensors' rows lag each other a little (see scanReplay's
+// lag). A log whose sensors' rows lag each other more (each sensor's rows
+// after the other's) is read again once per sensor, the reads merged by
+// time (perSensor, mergedRows), so that it too is sent in bounded memory.
 
 // replayRow is one row of a log being replayed.
 type replayRow struct {
@@ -36,6 +40,9 @@ type replayRead struct {
 	warns         []string // the reader's own, and --drop-missing's
 	rows, dropped int
 	temp          bool // the log has a temperature column
+	// back counts the rows (of all sensors, after --drop-missing) whose
+	// time is before the row's before.
+	back int
 }
 
 var errStopRows = errors.New("stop")
@@ -52,6 +59,7 @@ func (o *replayOptions) eachReplayRow(ctx context.Context, path string, opts []i
 	defer r.Release()
 	intern := map[string]string{}
 	row := 0
+	prevT := math.NaN()
 	for {
 		if err := ctx.Err(); err != nil {
 			return rd, err
@@ -95,6 +103,10 @@ func (o *replayOptions) eachReplayRow(ctx context.Context, path string, opts []i
 			}
 			i := row
 			row++
+			if t < prevT {
+				rd.back++
+			}
+			prevT = t
 			name := o.sensor
 			if hasGroup {
 				g := ""
@@ -158,7 +170,13 @@ type replayScan struct {
 	// whose sensors' rows follow one another. The second read holds the
 	// rows of lag plus a batch duration.
 	lag     float64
+	sorted  bool                     // read from the log put in time order (--time-order any)
 	largest map[string]*broker.Batch // each sensor's largest batch
+	// spans holds each sensor's first and last complete rows; complete
+	// counts the complete rows, earliest is their earliest time.
+	spans    map[string][2]int
+	complete int
+	earliest float64
 	// over counts the readings above broker.MaxFieldNT, in overBatches
 	// batches; firstOver words the first.
 	over, overBatches int
@@ -170,7 +188,8 @@ type replayScan struct {
 // takes) and counts its batches (those the broker holds, per held, in
 // resumed; held nil for none).
 func (o *replayOptions) scanReplay(ctx context.Context, path string, opts []ingest.Option, held map[string]float64, shift float64) (*replayScan, error) {
-	sc := &replayScan{largest: map[string]*broker.Batch{}, first: math.NaN(), last: math.Inf(-1)}
+	sc := &replayScan{largest: map[string]*broker.Batch{}, spans: map[string][2]int{}, first: math.NaN(), last: math.Inf(-1), earliest: math.Inf(1)}
+	sc.sorted = o.runs != nil
 	type sensorState struct {
 		b       *broker.Batch // being cut; empty between batches
 		seq     int
@@ -207,12 +226,14 @@ func (o *replayOptions) scanReplay(ctx context.Context, path string, opts []inge
 			b.Temp = b.Temp[:0]
 		}
 	}
-	rd, err := o.eachReplayRow(ctx, path, opts, func(r replayRow) error {
+	rd, err := o.logRows(ctx, path, opts, func(r replayRow) error {
 		if math.IsNaN(r.t) || math.IsNaN(r.bx) || math.IsNaN(r.by) || math.IsNaN(r.bz) {
 			return nil // as the live pipeline, replay skips incomplete rows
 		}
 		sc.lag = math.Max(sc.lag, sc.last-r.t)
 		sc.last = math.Max(sc.last, r.t)
+		sc.earliest = math.Min(sc.earliest, r.t)
+		sc.complete++
 		s := state[r.sensor]
 		if s == nil {
 			if err := broker.ValidToken(r.sensor); err != nil {
@@ -233,7 +254,7 @@ func (o *replayOptions) scanReplay(ctx context.Context, path string, opts []inge
 				if r.grouped {
 					who = fmt.Sprintf(" of sensor %q", r.sensor)
 				}
-				return fmt.Errorf("%s: data rows %d and %d%s have the same time, %s: the live pipeline takes one reading per sensor at a time; remove the repeated row", path, s.lastRow+1, r.row+1, who, strconv.FormatFloat(r.t, 'f', -1, 64))
+				return fmt.Errorf("%s: data rows %d and %d%s have the same time, %s: the live pipeline takes one reading per sensor at a time; remove the repeated row", path, min(s.lastRow, r.row)+1, max(s.lastRow, r.row)+1, who, strconv.FormatFloat(r.t, 'f', -1, 64))
 			case r.t < prev:
 				return fmt.Errorf("%s: row %d of the log: column time: time goes backwards for sensor %q: %s after %s (row %d of the log); if the rows may come in any order, allow it (on the command line --time-order any) and they are sent sorted by time", path, r.row+1, r.sensor, broker.TimeText(r.t), broker.TimeText(prev), s.lastRow+1)
 			}
@@ -252,6 +273,11 @@ func (o *replayOptions) scanReplay(ctx context.Context, path string, opts []inge
 			b.Temp = append(b.Temp, r.temp)
 		}
 		s.lastRow = r.row
+		if sp, ok := sc.spans[r.sensor]; ok {
+			sc.spans[r.sensor] = [2]int{sp[0], r.row}
+		} else {
+			sc.spans[r.sensor] = [2]int{r.row, r.row}
+		}
 		if m := math.Hypot(math.Hypot(r.bx, r.by), r.bz); m > broker.MaxFieldNT {
 			s.over++
 			sc.over++
@@ -280,19 +306,33 @@ func (o *replayOptions) scanReplay(ctx context.Context, path string, opts []inge
 // batches as they are cut by the Batcher it returns, with a function that
 // stops the read. sc is the first read's; opts the read's options.
 func (o *replayOptions) replaySource(ctx context.Context, path string, opts []ingest.Option, sc *replayScan) (*broker.ReplaySource, *broker.Batcher, func(), error) {
-	z, err := broker.NewBatcher(path, o.asset, o.batch.Seconds(), sc.lag, sc.read.temp)
+	lag := sc.lag
+	merge := sc.perSensor(path, o.batch.Seconds())
+	if merge {
+		lag = 0 // the merged rows come in time order
+	}
+	z, err := broker.NewBatcher(path, o.asset, o.batch.Seconds(), lag, sc.read.temp)
 	if err != nil {
 		return nil, nil, nil, err
 	}
-	var readErr error
-	next, stop := iter.Pull(func(yield func(replayRow) bool) {
-		_, readErr = o.eachReplayRow(ctx, path, opts, func(r replayRow) error {
-			if !yield(r) {
-				return errStopRows
-			}
-			return nil
+	var next func() (replayRow, bool)
+	var stop func()
+	var readErr func() error
+	if merge {
+		z.ByRow()
+		next, stop, readErr = o.mergedRows(ctx, path, opts, sc)
+	} else {
+		var err error
+		next, stop = iter.Pull(func(yield func(replayRow) bool) {
+			_, err = o.logRows(ctx, path, opts, func(r replayRow) error {
+				if !yield(r) {
+					return errStopRows
+				}
+				return nil
+			})
 		})
-	})
+		readErr = func() error { return err }
+	}
 	src := &broker.ReplaySource{Total: sc.total}
 	for _, name := range sc.sensors {
 		src.Sensors = append(src.Sensors, broker.SensorKey{Asset: o.asset, Sensor: name})
@@ -308,8 +348,8 @@ func (o *replayOptions) replaySource(ctx context.Context, path string, opts []in
 			}
 			r, ok := next()
 			if !ok {
-				if readErr != nil {
-					return nil, readErr
+				if err := readErr(); err != nil {
+					return nil, err
 				}
 				z.Flush()
 				done = true
@@ -329,4 +369,112 @@ func (o *replayOptions) replaySource(ctx context.Context, path string, opts []in
 		return again.resumed, nil
 	}
 	return src, z, stop, nil
+}
+
+// replayMergeRows is about the most rows the second read of a log may
+// hold in its sensors' lag (rows a second times the lag plus a batch
+// duration) before the log is read instead once per sensor, merged by
+// time (mergedRows). A variable for tests.
+var replayMergeRows = 1 << 16
+
+// replayMaxReaders is the most sensors read each by its own reader: a log
+// of more is read once, holding its lag.
+const replayMaxReaders = 64
+
+// perSensor says whether the second read goes one reader per sensor: when
+// the rows held in the lag would be more than replayMergeRows (a log whose
+// sensors' rows follow one another, not interleaved in time), and the log
+// is a regular file, to be read once per sensor.
+func (sc *replayScan) perSensor(path string, dur float64) bool {
+	if sc.sorted || len(sc.sensors) < 2 || len(sc.sensors) > replayMaxReaders || !(sc.lag > 0) {
+		return false
+	}
+	if st, err := os.Stat(path); err != nil || !st.Mode().IsRegular() {
+		return false
+	}
+	held := float64(sc.complete)
+	if span := sc.last - sc.earliest; span > 0 {
+		held *= math.Min(1, (sc.lag+dur)/span)
+	}
+	return held > float64(replayMergeRows)
+}
+
+// mergedRows reads the log once per sensor, from the sensor's first
+// complete row to its last (those before are read and passed over), and
+// gives the complete rows of all sensors merged in time order (ties in row
+// order), holding a row a sensor besides each read's record batch. It
+// returns the rows' next, a stop for every read and the first read error.
+func (o *replayOptions) mergedRows(ctx context.Context, path string, opts []ingest.Option, sc *replayScan) (func() (replayRow, bool), func(), func() error) {
+	type reader struct {
+		next func() (replayRow, bool)
+		stop func()
+		head replayRow
+		ok   bool
+		err  error
+	}
+	rs := make([]*reader, len(sc.sensors))
+	// One CSV parser each: the reads run side by side, and each parser
+	// holds its chunks in flight.
+	opts = append(opts[:len(opts):len(opts)], ingest.WithWorkers(1))
+	for i, name := range sc.sensors {
+		span := sc.spans[name]
+		rd := &reader{}
+		rd.next, rd.stop = iter.Pull(func(yield func(replayRow) bool) {
+			_, err := o.eachReplayRow(ctx, path, opts, func(r replayRow) error {
+				if r.row > span[1] {
+					return errStopRows
+				}
+				if r.row < span[0] || r.sensor != name || math.IsNaN(r.t) || math.IsNaN(r.bx) || math.IsNaN(r.by) || math.IsNaN(r.bz) {
+					return nil
+				}
+				if !yield(r) {
+					return errStopRows
+				}
+				return nil
+			})
+			if !errors.Is(err, errStopRows) {
+				rd.err = err
+			}
+		})
+		rs[i] = rd
+	}
+	started := false
+	next := func() (replayRow, bool) {
+		if !started {
+			// The reads start on the first row asked for.
+			started = true
+			for _, rd := range rs {
+				rd.head, rd.ok = rd.next()
+			}
+		}
+		var top *reader
+		for _, rd := range rs {
+			if rd.err != nil {
+				return replayRow{}, false
+			}
+			if rd.ok && (top == nil || rd.head.t < top.head.t || (rd.head.t == top.head.t && rd.head.row < top.head.row)) {
+				top = rd
+			}
+		}
+		if top == nil {
+			return replayRow{}, false
+		}
+		r := top.head
+		top.head, top.ok = top.next()
+		return r, true
+	}
+	stop := func() {
+		for _, rd := range rs {
+			rd.stop()
+		}
+	}
+	readErr := func() error {
+		for _, rd := range rs {
+			if rd.err != nil {
+				return rd.err
+			}
+		}
+		return nil
+	}
+	return next, stop, readErr
 }

@@ -65,10 +65,11 @@ returns the first limit results of its range (default 10000, at most
 100000), and one cut short answers the headers X-Uc-More: true and
 X-Uc-Next-From (the from to ask again with). A lasting condition
 (over-current, imbalance, a conductor's share of the current above its
-max_share, a silent, stuck or saturated sensor) is alarmed once when it
-begins, again (marked worsened) each time over-current, imbalance or
-share reaches 1.5 times the value last alarmed, and once, marked
-cleared (with the window's value and the peak; not counted in
+max_share, or below its min_share as low-share, a silent, stuck or
+saturated sensor) is alarmed once when it begins, again (marked
+worsened) each time over-current, imbalance or share reaches 1.5 times
+the value last alarmed or a low share falls to two thirds of it, and
+once, marked cleared (with the window's value and the peak; not counted in
 uc_alarms_total), when it ends. POST /api/v1/assets/ASSET/recommission and
 POST /api/v1/assets/ASSET/restart?start= (re-read the asset from "new", a
 duration back such as "24h", an RFC 3339 time or "retained") need the

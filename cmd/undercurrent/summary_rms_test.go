@@ -32,7 +32,7 @@ func TestSummaryRMSColumn(t *testing.T) {
 		doc.Groups = append(doc.Groups, g)
 	}
 	var buf bytes.Buffer
-	printSummary(&buf, doc, time.Second)
+	printSummary(&buf, doc, time.Second, 0)
 	out := buf.String()
 	lines := strings.Split(out, "\n")
 	header := -1

@@ -30,6 +30,9 @@ type Batcher struct {
 	oldest        float64 // the earliest first time of the open batches (or earlier)
 	done          bool
 	max           int // most batches held at once
+	// byRow: rows come out of the log's row order (a merge of several
+	// reads of it), so a batch's place among ties is its first row's.
+	byRow bool
 }
 
 type openBatch struct {
@@ -52,6 +55,14 @@ func NewBatcher(source, asset string, dur, lag float64, temp bool) (*Batcher, er
 	}
 	return &Batcher{source: source, asset: asset, dur: dur, lag: lag, temp: temp, open: map[string]*openBatch{}, maxT: math.Inf(-1), oldest: math.Inf(1)}, nil
 }
+
+// ByRow says that rows will come out of the log's row order, merged by
+// time from several reads of the log (one per sensor): a tie on the last
+// sample time then goes to the batch whose first row comes first in the
+// log, as it does for rows given in row order, and a batch is given by
+// Next only once a later time has been given (a batch begun later may
+// then still precede it). Call it before the first Add.
+func (z *Batcher) ByRow() { z.byRow = true }
 
 // Add gives the row (0-based, counted in the log's data rows for errors)
 // of sensor at time t. A row with a missing (NaN) time or field is
@@ -86,6 +97,9 @@ func (z *Batcher) Add(row int, sensor string, t, bx, by, bz, temp float64) error
 		}
 		o = &openBatch{b: &Batch{Asset: z.asset, Sensor: sensor}, seq: z.seq}
 		z.seq++
+		if z.byRow {
+			o.seq = row
+		}
 		if z.temp {
 			o.b.Temp = []float64{}
 		}
@@ -142,7 +156,7 @@ func (z *Batcher) Next() *Batch {
 		// top on a tie); an open batch ends at its last time so far or
 		// after.
 		last := top.b.Time[len(top.b.Time)-1]
-		if last > z.maxT-z.lag {
+		if last > z.maxT-z.lag || (z.byRow && last == z.maxT-z.lag) {
 			return nil
 		}
 		for _, o := range z.open {

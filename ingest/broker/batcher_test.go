@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"sort"
 	"testing"
 
 	"undercurrent/ingest"
@@ -170,6 +171,82 @@ func TestBatcherHoldsBoundedBatches(t *testing.T) {
 		limit := 2*5 + int(late*10*5) + 5
 		if held[0] > limit || held[1] > limit {
 			t.Errorf("rows up to %g s late: held at most %d batches for a 20 s log and %d for a 400 s log, want at most %d for any length", late, held[0], held[1], limit)
+		}
+	}
+}
+
+// A Batcher told ByRow, given a log's rows merged by time from one read
+// per sensor (ties in row order) rather than in the log's order, gives the
+// batches SplitSamples gives for the log as it is, in the same order, and
+// holds a few batches a sensor: sensors at other rates whose rows follow
+// one another in the log, each sensor's whole run or runs of 2 s in turn.
+// Ties on the last time go by the batch's first row in the log: told
+// nothing, the Batcher orders them by the merged order.
+func TestBatcherByRowMergedAsSplitSamples(t *testing.T) {
+	rate := map[string]float64{"a": 0.0625, "b": 0.03125, "c": 0.037, "d": 0.25}
+	start := map[string]float64{"a": 0.03125, "b": 0}
+	for _, run := range []float64{20, 2} {
+		var rows []batcherRow
+		for p := 0.0; p < 20; p += run {
+			for _, s := range []string{"a", "b", "c", "d"} {
+				for k := 0; ; k++ {
+					tt := start[s] + float64(k)*rate[s]
+					if tt >= p+run {
+						break
+					}
+					if tt >= p {
+						rows = append(rows, batcherRow{s, tt})
+					}
+				}
+			}
+		}
+		s := &ingest.Samples{Source: "log.csv"}
+		for _, r := range rows {
+			s.Time = append(s.Time, r.t)
+			s.Bx, s.By, s.Bz = append(s.Bx, r.t), append(s.By, 2*r.t), append(s.Bz, 3*r.t)
+			s.Group = append(s.Group, r.sensor)
+		}
+		want, err := SplitSamples(s, "fenwick-lane", "", 0.1)
+		if err != nil {
+			t.Fatal(err)
+		}
+		order := make([]int, len(rows))
+		for i := range order {
+			order[i] = i
+		}
+		sort.SliceStable(order, func(i, j int) bool { return rows[order[i]].t < rows[order[j]].t })
+		for _, byRow := range []bool{true, false} {
+			z, err := NewBatcher("log.csv", "fenwick-lane", 0.1, 0, false)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if byRow {
+				z.ByRow()
+			}
+			var got []*Batch
+			for _, i := range order {
+				r := rows[i]
+				if err := z.Add(i, r.sensor, r.t, r.t, 2*r.t, 3*r.t, 0); err != nil {
+					t.Fatal(err)
+				}
+				for b := z.Next(); b != nil; b = z.Next() {
+					got = append(got, b)
+				}
+			}
+			z.Flush()
+			for b := z.Next(); b != nil; b = z.Next() {
+				got = append(got, b)
+			}
+			same := len(got) == len(want)
+			for i := 0; same && i < len(want); i++ {
+				same = got[i].Sensor == want[i].Sensor && fmt.Sprint(got[i].Time) == fmt.Sprint(want[i].Time)
+			}
+			if same != byRow {
+				t.Errorf("runs of %g s, ByRow %v: the same batches in the same order as SplitSamples: %v", run, byRow, same)
+			}
+			if byRow && z.MaxHeld() > 2*4+1 {
+				t.Errorf("runs of %g s: held %d batches at once, want at most 9", run, z.MaxHeld())
+			}
 		}
 	}
 }

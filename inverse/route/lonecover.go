@@ -3,7 +3,7 @@ package route
 import (
 	"fmt"
 	"math"
-	"strings"
+	"slices"
 )
 
 // LoneCover checks the cover of l, a further line source of the fit at
@@ -22,15 +22,54 @@ import (
 // other stations' fits show of l brackets it as the route's runs are
 // (LoneMark, CoverRuns, Bracket).
 func LoneCover(p *Placed, l Line, set *Settings, single bool) (Finding, bool) {
-	if LoneMark(p, l, set) != MarkShort {
+	return LoneRunCover([]*Placed{p}, []Line{l}, set, single)
+}
+
+// LoneRunCover is LoneCover for one lone line seen in line at successive
+// usable stations, each ls[i] at ps[i] in route order (a station may come
+// twice where its fit holds two lines in line with the others): one
+// finding for the run, as the route's own shallow runs get one (cover),
+// naming its stations and giving the least cover, its sigma and the
+// station where it is least, with that line's current and azimuth. A crew
+// read two or three shallow-cover rows for one service under successive
+// traverses, each with the same bracket (found in review). Which lines
+// are in line is the caller's to judge; InLineWith of the lines names the
+// other stations that show the line (not those of the run). It returns
+// false, as LoneCover does, when any line's cover is not short
+// (LoneMark). With one line its finding is LoneCover's.
+func LoneRunCover(ps []*Placed, ls []Line, set *Settings, single bool) (Finding, bool) {
+	if len(ps) == 0 || len(ps) != len(ls) {
 		return Finding{}, false
 	}
 	k := set.coverK()
-	c, sc := set.cover(l.Depth, l.DepthSigma)
-	sev, verdict := SeverityCaution, "may be less than"
-	if c+k*sc < set.MinCover {
-		sev, verdict = SeverityWarning, "is less than"
+	low, sev := 0, SeverityCaution
+	var keys, inLine []string
+	for i := range ps {
+		if LoneMark(ps[i], ls[i], set) != MarkShort {
+			return Finding{}, false
+		}
+		c, sc := set.cover(ls[i].Depth, ls[i].DepthSigma)
+		if c+k*sc < set.MinCover {
+			sev = SeverityWarning
+		}
+		if lc, _ := set.cover(ls[low].Depth, ls[low].DepthSigma); c < lc {
+			low = i
+		}
+		if len(keys) == 0 || keys[len(keys)-1] != ps[i].Key {
+			keys = append(keys, ps[i].Key)
+		}
+		for _, o := range ls[i].InLineWith {
+			if !slices.Contains(inLine, o) {
+				inLine = append(inLine, o)
+			}
+		}
 	}
+	verdict := "may be less than"
+	if sev == SeverityWarning {
+		verdict = "is less than"
+	}
+	p, l := ps[low], ls[low]
+	c, sc := set.cover(l.Depth, l.DepthSigma)
 	code := "no code named"
 	if set.CoverCode != "" {
 		code = set.CoverCode
@@ -43,28 +82,37 @@ func LoneCover(p *Placed, l Line, set *Settings, single bool) (Finding, bool) {
 		azText = fmt.Sprintf("%.0f", math.Mod(math.Round(az), 180))
 	}
 	why := "too few groups show it: a crossing service, or a conductor the other fits do not resolve"
-	if n := len(l.InLineWith); n > 0 {
+	if len(keys) > 1 {
+		why = "too few groups to follow it as a conductor: a crossing service, for example"
+	}
+	if n := len(inLine); n > 0 {
 		// Two or more groups do show it, in line (found in review: the
 		// same service at four traverses was "too few groups" four times).
-		others := strings.Join(l.InLineWith, " and ")
-		if n > 2 {
-			others = strings.Join(l.InLineWith[:n-1], ", ") + " and " + l.InLineWith[n-1]
-		}
+		others := andList(inLine)
 		fits, show := "fits", "show"
 		if n == 1 {
 			fits, show = "fit", "shows"
 		}
 		why = fmt.Sprintf("the %s at %s %s a line along it too, but too few groups to follow it as a conductor: a crossing service, for example", fits, others, show)
 	}
-	msg := fmt.Sprintf("a further line source in the fit at %s, %s A running at azimuth %s degrees, is not followed along the route (%s); its cover, %s m, %s the %.2f m minimum (%s): confirm before digging here",
-		at(p, single), pm(math.Abs(l.Current), l.CurrentSigma), azText, why, pm(c, sc), verdict, math.Abs(set.MinCover), code)
+	minimum := fmt.Sprintf("the %.2f m minimum (%s)", math.Abs(set.MinCover), code)
+	var msg string
+	if len(keys) == 1 {
+		msg = fmt.Sprintf("a further line source in the fit at %s, %s A running at azimuth %s degrees, is not followed along the route (%s); its cover, %s m, %s %s: confirm before digging here",
+			at(p, single), pm(math.Abs(l.Current), l.CurrentSigma), azText, why, pm(c, sc), verdict, minimum)
+	} else {
+		first, last := ps[0], ps[len(ps)-1]
+		msg = fmt.Sprintf("a further line source, seen in line in the fits at %s, is not followed along the route (%s); its cover %s %s from %s (chainage %.1f m) to %s (%.1f m); least at %s (chainage %.1f m): %s m, where it carries %s A running at azimuth %s degrees: confirm before digging here",
+			andList(keys), why, verdict, minimum, first.Key, first.Chainage, last.Key, last.Chainage,
+			p.Key, p.Chainage, pm(c, sc), pm(math.Abs(l.Current), l.CurrentSigma), azText)
+	}
 	return Finding{
 		Kind:     KindShallowCover,
 		Severity: sev,
-		From:     p.Chainage,
-		To:       p.Chainage,
+		From:     ps[0].Chainage,
+		To:       ps[len(ps)-1].Chainage,
 		Position: l.Point,
-		Keys:     []string{p.Key},
+		Keys:     keys,
 		Message:  msg,
 		Values: []Value{
 			{Name: "cover", Value: c, Sigma: sc, Unit: "m"},

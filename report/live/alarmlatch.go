@@ -34,7 +34,7 @@ import (
 // implausible, inconsistent) and the currents' (over-current, imbalance)
 // as they were, and the first solved window clears the failures.
 var latchedKinds = map[string]bool{AlarmOverCurrent: true, AlarmImbalance: true, AlarmSilent: true, AlarmStuck: true, AlarmSaturated: true,
-	AlarmDegraded: true, AlarmImplausible: true, AlarmInconsistent: true, AlarmShare: true}
+	AlarmDegraded: true, AlarmImplausible: true, AlarmInconsistent: true, AlarmShare: true, AlarmLowShare: true}
 
 // WorsenFactor is how much a held condition must grow, over the value
 // last alarmed for it, to be raised again (Alarm.Worsened): a leak of
@@ -47,8 +47,10 @@ const WorsenFactor = 1.5
 
 // worsened reports whether a held condition's value v has grown enough
 // over last, the value last alarmed, to be raised again. Over-current
-// and imbalance are currents, compared as they are; degraded and
-// inconsistent are reduced chi-squares, compared by their square roots.
+// and imbalance are currents, compared as they are, and so is a share;
+// a low share worsens as it falls, to 1/WorsenFactor of the share last
+// alarmed (0.4 again at 0.267); degraded and inconsistent are reduced
+// chi-squares, compared by their square roots.
 // The other kinds do not worsen: a sensor's stuck or clipped reading, a
 // silence, a failed fit and an implausible check (the Earth's field out
 // of range or a chi-square far below its degrees of freedom: readings in
@@ -60,6 +62,8 @@ func worsened(kind string, failed bool, v, last float64) bool {
 	switch kind {
 	case AlarmOverCurrent, AlarmImbalance, AlarmShare:
 		return math.Abs(v) >= WorsenFactor*math.Abs(last)
+	case AlarmLowShare:
+		return WorsenFactor*math.Abs(v) <= math.Abs(last)
 	case AlarmDegraded, AlarmInconsistent:
 		return v >= WorsenFactor*WorsenFactor*last
 	}
@@ -71,7 +75,7 @@ func worsened(kind string, failed bool, v, last float64) bool {
 // was.
 func judgedByFit(kind string) bool {
 	switch kind {
-	case AlarmOverCurrent, AlarmImbalance, AlarmDegraded, AlarmImplausible, AlarmInconsistent, AlarmShare:
+	case AlarmOverCurrent, AlarmImbalance, AlarmDegraded, AlarmImplausible, AlarmInconsistent, AlarmShare, AlarmLowShare:
 		return true
 	}
 	return false
@@ -101,12 +105,17 @@ const clearAfter = 3
 // reduced chi-square not known, an Earth's field not seen) leaves it as
 // it was.
 //
-// A share (AlarmShare) is judged only in a window whose denominator is
-// above its floor (shareAlarms): between trams, with the return current
-// near zero, a held share is neither continued nor cleared.
+// A share (AlarmShare, AlarmLowShare) is judged only in a window whose
+// denominator is above its floor (shareAlarms): between trams, with the
+// return current near zero, a held share is neither continued nor
+// cleared.
 func needsLevel(kind string) bool {
-	return kind == AlarmDegraded || kind == AlarmImplausible || kind == AlarmShare
+	return kind == AlarmDegraded || kind == AlarmImplausible || isShare(kind)
 }
+
+// isShare reports whether kind is a share's condition, above max_share
+// or below min_share.
+func isShare(kind string) bool { return kind == AlarmShare || kind == AlarmLowShare }
 
 // setLevel records the window's value of a latched kind for subject,
 // also when under its threshold (for the Cleared alarm's Value), and so
@@ -210,7 +219,11 @@ func (p *processor) latch(w *window, est *Estimate, alarms []Alarm) []Alarm {
 				last = st.Peak // a checkpoint from before Last was kept
 			}
 			if worsened(al.Kind, st.Failed, al.Value, last) {
-				al.Message += fmt.Sprintf("; raised again: it has grown from %.4g, alarmed last, to %.4g since it began in the window starting %s", last, al.Value, unixString(st.Since))
+				grown := "grown"
+				if al.Kind == AlarmLowShare {
+					grown = "fallen"
+				}
+				al.Message += fmt.Sprintf("; raised again: it has %s from %.4g, alarmed last, to %.4g since it began in the window starting %s", grown, last, al.Value, unixString(st.Since))
 				al.Worsened, al.Previous, al.Since = true, last, st.Since
 				st.Last = al.Value
 				out = append(out, al)
@@ -224,6 +237,8 @@ func (p *processor) latch(w *window, est *Estimate, alarms []Alarm) []Alarm {
 			al.Message += "; raised once while the condition lasts (the estimates list it as ongoing), again if its misfit grows to 1.5 times the one alarmed (the reduced chi-square to 2.25 times), and, marked cleared, when it ends"
 		case al.Kind == AlarmOverCurrent || al.Kind == AlarmImbalance || al.Kind == AlarmShare:
 			al.Message += "; raised once while the condition lasts (the estimates list it as ongoing), again if it grows to 1.5 times the value alarmed, and, marked cleared, when it ends"
+		case al.Kind == AlarmLowShare:
+			al.Message += "; raised once while the condition lasts (the estimates list it as ongoing), again if it falls to two thirds of the value alarmed, and, marked cleared, when it ends"
 		default:
 			al.Message += "; raised once while the condition lasts (the estimates list it as ongoing) and, marked cleared, when it ends"
 		}
@@ -253,12 +268,12 @@ func (p *processor) latch(w *window, est *Estimate, alarms []Alarm) []Alarm {
 				// ongoing, with its last value and its count of judged
 				// windows: between trams (most windows at a quiet
 				// depot) the condition is held, not gone.
-				if st.Kind == AlarmShare && est != nil {
+				if isShare(st.Kind) && est != nil {
 					est.Ongoing = append(est.Ongoing, OngoingAlarm{Kind: st.Kind, Subject: st.Subject, Since: st.Since, Windows: st.Windows, Value: st.Value})
 				}
 				continue
 			}
-			if v, ok := p.level[k]; ok && (st.Kind == AlarmDegraded || st.Kind == AlarmInconsistent || st.Kind == AlarmShare) {
+			if v, ok := p.level[k]; ok && (st.Kind == AlarmDegraded || st.Kind == AlarmInconsistent || isShare(st.Kind)) {
 				// Within the deadband, or under it for fewer than
 				// clearAfter windows: still held.
 				hold := true
@@ -266,10 +281,10 @@ func (p *processor) latch(w *window, est *Estimate, alarms []Alarm) []Alarm {
 				switch st.Kind {
 				case AlarmDegraded:
 					quiet = v <= st.Threshold/(WorsenFactor*WorsenFactor)
-				case AlarmShare:
-					quiet = p.shareQuiet[k] // under its deadband (shareAlarms)
+				case AlarmShare, AlarmLowShare:
+					quiet = p.shareQuiet[k] // past its deadband (shareAlarms)
 				}
-				if st.Kind == AlarmDegraded || st.Kind == AlarmShare {
+				if st.Kind == AlarmDegraded || isShare(st.Kind) {
 					if !quiet {
 						st.Quiet = 0
 					} else {
@@ -302,8 +317,11 @@ func (p *processor) latch(w *window, est *Estimate, alarms []Alarm) []Alarm {
 		}
 		if st.Peak != 0 {
 			vals += fmt.Sprintf("; largest value %.4g", st.Peak)
-			if st.Kind == AlarmImplausible {
+			switch st.Kind {
+			case AlarmImplausible:
 				vals = strings.Replace(vals, "largest value", "value furthest from the threshold", 1)
+			case AlarmLowShare:
+				vals = strings.Replace(vals, "largest value", "smallest share", 1)
 			}
 		}
 		upTo := "up to this one"
@@ -323,10 +341,14 @@ func (p *processor) latch(w *window, est *Estimate, alarms []Alarm) []Alarm {
 // worse reports whether v is a worse value of a held condition of kind
 // than peak, the worst so far: for an implausible check the one further
 // from the threshold (a field far below the range, a chi-square nearer 0),
-// for the others the one of larger magnitude.
+// for a low share the smaller, for the others the one of larger
+// magnitude.
 func worse(kind string, v, peak, threshold float64) bool {
-	if kind == AlarmImplausible {
+	switch kind {
+	case AlarmImplausible:
 		return math.Abs(v-threshold) > math.Abs(peak-threshold)
+	case AlarmLowShare:
+		return v < peak
 	}
 	return math.Abs(v) > math.Abs(peak)
 }

@@ -13,6 +13,13 @@ import (
 // pipe's [[asset.conductor]] entry, alarms is the [asset.alarms] table.
 func tractionSite(t *testing.T, extra, alarms string) *AssetConfig {
 	t.Helper()
+	return depotSite(t, "", extra, alarms)
+}
+
+// depotSite is tractionSite with cable added to the cable's
+// [[asset.conductor]] entry as well.
+func depotSite(t *testing.T, cable, extra, alarms string) *AssetConfig {
+	t.Helper()
 	text := `name = "depot"
 [[asset]]
 name = "depot"
@@ -35,6 +42,7 @@ noise = 0.5
   name = "cable"
   point = [-1.0, 0.0, -0.8]
   direction = [0.0, 1.0, 0.0]
+` + cable + `
   [[asset.conductor]]
   name = "pipe"
   point = [1.0, 0.0, -1.2]

@@ -236,12 +236,13 @@
 // "implausible"), inconsistent (a sensor the others contradict, left
 // out), share (a conductor's |I| over the asset's conductors' summed |I|,
 // or over share_of's, above its max_share by three sigmas; judged only
-// where the denominator is above share_floor: share.go). Each is
+// where the denominator is above share_floor: share.go), low-share (the
+// same share below its min_share by three sigmas). Each is
 // published on
 // uc.alarm.<asset>.<kind> with message id "<asset>/<window>/<kind>/<subject>".
 // All but step, data-lost and commissioning are conditions: raised once
 // at their onset, again when worse by WorsenFactor (over-current,
-// imbalance, share, degraded, inconsistent), and marked cleared when they end
+// imbalance, share, low-share falling, degraded, inconsistent), and marked cleared when they end
 // (alarmlatch.go).
 //
 // # Queries

@@ -320,8 +320,11 @@ const (
 	// AlarmShare: a conductor carries more than its max_share of the
 	// current (subject: the conductor; value: the share; see shareAlarms).
 	AlarmShare = "share"
+	// AlarmLowShare: a conductor carries less than its min_share of the
+	// current (subject: the conductor; value: the share; see shareAlarms).
+	AlarmLowShare = "low-share"
 )
 
 // AlarmKinds lists every alarm kind the service raises; the alarms API
 // refuses any other kind.
-var AlarmKinds = []string{AlarmOverCurrent, AlarmImbalance, AlarmStep, AlarmSilent, AlarmStuck, AlarmSaturated, AlarmDegraded, AlarmImplausible, AlarmDataLost, AlarmInconsistent, AlarmCommissioning, AlarmClockJump, AlarmOutOfOrder, AlarmShare}
+var AlarmKinds = []string{AlarmOverCurrent, AlarmImbalance, AlarmStep, AlarmSilent, AlarmStuck, AlarmSaturated, AlarmDegraded, AlarmImplausible, AlarmDataLost, AlarmInconsistent, AlarmCommissioning, AlarmClockJump, AlarmOutOfOrder, AlarmShare, AlarmLowShare}

@@ -31,10 +31,15 @@ import (
 // shareMinSigmas times its own sigma (between trams: the currents are
 // noise about zero and their ratio means nothing), neither continues nor
 // clears it (needsLevel), so a fault lasting through many trams is one
-// alarm.
+// alarm. A conductor's min_share is judged the same way the other way
+// round (AlarmLowShare): raised when share + shareSigmas sigma is under
+// it (a return cable whose share falls as a leak to earth beside it
+// grows, or a bonded sheath gone open), cleared past a deadband of the
+// same width seen from the other paths' side (shareBounds).
 
 // shareSigmas is how many standard deviations the share must be above
-// max_share to raise the alarm, and under the deadband to clear it.
+// max_share (below min_share) to raise the alarm, and past the deadband
+// to clear it.
 const shareSigmas = 3
 
 // shareClearFraction: a held share is cleared once it is under this
@@ -42,6 +47,8 @@ const shareSigmas = 3
 // shareSigmas, in clearAfter judged windows in a row. A share that wavers
 // about the limit from one tram to the next (the paths' resistances
 // changing with the load) is then one condition, not one per tram.
+// min_share's deadband is the same seen from the other side
+// (shareBounds).
 const shareClearFraction = 0.9
 
 // shareMinSigmas: a share is judged only in a window whose denominator is
@@ -131,17 +138,67 @@ func shareOf(e *Estimate, cc *ConductorConfig) (v shareValue, ok bool) {
 	return v, true
 }
 
-// shareAlarms judges the max_share of each conductor that gives one in
-// the solved estimate e, sets the shares judged as levels for the latch,
-// and returns the alarms raised.
+// shareBound is one of a conductor's limits on its share: max_share,
+// raised above it (AlarmShare), or min_share, raised below it
+// (AlarmLowShare).
+type shareBound struct {
+	kind, key string
+	limit     float64
+	low       bool
+	// clear is the share that a held condition must be past, by
+	// shareSigmas, to be quiet (see shareAlarms).
+	clear float64
+	// cause says in plain words what moves a path's share this way.
+	cause string
+}
+
+// shareBounds are the limits that conductor entry cc gives (a limit of
+// 0 is off). max_share's deadband is shareClearFraction of the limit;
+// min_share's is the same deadband seen from the other side: a share s
+// of the asset's conductors together under min_share m is the others'
+// share 1-s over 1-m, quiet under shareClearFraction (1-m), so s above
+// 1 - shareClearFraction (1-m) (0.64 for 0.6); a share of share_of's
+// current under m is share_of's over this one's above 1/m, quiet under
+// shareClearFraction/m, so s above m/shareClearFraction.
+func shareBounds(cc *ConductorConfig) []shareBound {
+	var out []shareBound
+	if cc.MaxShare != nil && *cc.MaxShare > 0 {
+		m := *cc.MaxShare
+		out = append(out, shareBound{kind: AlarmShare, key: "max_share", limit: m, clear: shareClearFraction * m,
+			cause: "a bond, a joint or a coating fault"})
+	}
+	if cc.MinShare != nil && *cc.MinShare > 0 {
+		m := *cc.MinShare
+		clear := 1 - shareClearFraction*(1-m)
+		if cc.ShareOf != "" {
+			clear = m / shareClearFraction
+		}
+		out = append(out, shareBound{kind: AlarmLowShare, key: "min_share", limit: m, low: true, clear: clear,
+			cause: "a bond or a joint gone open on this path, or a leak to earth beside it"})
+	}
+	return out
+}
+
+// past is how far share is beyond the bound, in the direction that
+// raises it (negative: within it).
+func (b *shareBound) past(share float64) float64 {
+	if b.low {
+		return b.limit - share
+	}
+	return share - b.limit
+}
+
+// shareAlarms judges the max_share and min_share of each conductor that
+// gives them in the solved estimate e, sets the shares judged as levels
+// for the latch, and returns the alarms raised.
 func (p *processor) shareAlarms(w *window, e *Estimate) []Alarm {
 	var out []Alarm
 	for ci := range p.asset.Conductors {
 		cc := &p.asset.Conductors[ci]
-		if cc.MaxShare == nil || *cc.MaxShare <= 0 {
+		bounds := shareBounds(cc)
+		if len(bounds) == 0 {
 			continue
 		}
-		limit := *cc.MaxShare
 		v, ok := shareOf(e, cc)
 		floor := 0.0
 		if cc.ShareFloor != nil {
@@ -153,29 +210,49 @@ func (p *processor) shareAlarms(w *window, e *Estimate) []Alarm {
 		if math.IsNaN(v.share) || math.IsInf(v.share, 0) || math.IsNaN(v.sigma) || math.IsInf(v.sigma, 0) {
 			continue
 		}
-		key := latchKey(AlarmShare, cc.Name)
-		p.setLevel(AlarmShare, cc.Name, v.share)
-		if p.shareQuiet == nil {
-			p.shareQuiet = map[string]bool{}
+		for _, b := range bounds {
+			if al, ok := p.judgeShare(w, cc, &b, v); ok {
+				out = append(out, al)
+			}
 		}
-		p.shareQuiet[key] = v.share+shareSigmas*v.sigma < shareClearFraction*limit
-		if v.share-shareSigmas*v.sigma <= limit {
-			continue
-		}
-		what := "the current of conductor " + v.of
-		if cc.ShareOf == "" {
-			what = "the asset's conductors' currents together (" + v.of + ")"
-		}
-		by := ""
-		if v.sigma > 0 {
-			by = fmt.Sprintf(" by %.3g times its uncertainty", (v.share-limit)/v.sigma)
-		}
-		cur := v.share * v.denom
-		al := p.alarm(w, AlarmShare, cc.Name, v.share, limit,
-			fmt.Sprintf("conductor %s carries %.4g ± %.2g of %s: %.4g A of %.4g A, above its max_share %.4g%s (a path's share of a current that divides between parallel paths changes when a path's resistance does: a bond, a joint or a coating fault)",
-				cc.Name, v.share, v.sigma, what, cur, v.denom, limit, by))
-		al.Sigma, al.ShareOf, al.ShareOfCurrent = v.sigma, v.of, v.denom
-		out = append(out, al)
 	}
 	return out
+}
+
+// judgeShare judges conductor cc's share v, in a window where it is
+// judged, against bound b: it sets the level and whether the share is
+// quiet for the latch, and returns the alarm when the share is beyond
+// the limit by more than shareSigmas sigma.
+func (p *processor) judgeShare(w *window, cc *ConductorConfig, b *shareBound, v shareValue) (Alarm, bool) {
+	key := latchKey(b.kind, cc.Name)
+	p.setLevel(b.kind, cc.Name, v.share)
+	if p.shareQuiet == nil {
+		p.shareQuiet = map[string]bool{}
+	}
+	// Quiet: within the deadband's edge by shareSigmas sigma.
+	quiet := v.share+shareSigmas*v.sigma < b.clear
+	if b.low {
+		quiet = v.share-shareSigmas*v.sigma > b.clear
+	}
+	p.shareQuiet[key] = quiet
+	if b.past(v.share) <= shareSigmas*v.sigma {
+		return Alarm{}, false
+	}
+	what := "the current of conductor " + v.of
+	if cc.ShareOf == "" {
+		what = "the asset's conductors' currents together (" + v.of + ")"
+	}
+	by := ""
+	if v.sigma > 0 {
+		by = fmt.Sprintf(" by %.3g times its uncertainty", b.past(v.share)/v.sigma)
+	}
+	side := "above"
+	if b.low {
+		side = "below"
+	}
+	al := p.alarm(w, b.kind, cc.Name, v.share, b.limit,
+		fmt.Sprintf("conductor %s carries %.4g ± %.2g of %s: %.4g A of %.4g A, %s its %s %.4g%s (a path's share of a current that divides between parallel paths changes when a path's resistance does: %s)",
+			cc.Name, v.share, v.sigma, what, v.share*v.denom, v.denom, side, b.key, b.limit, by, b.cause))
+	al.Sigma, al.ShareOf, al.ShareOfCurrent = v.sigma, v.of, v.denom
+	return al, true
 }

@@ -228,8 +228,12 @@ type ConductorConfig struct {
 	// current). It is judged only in windows whose denominator is above
 	// ShareFloor, A (absent: 0), and at least shareMinSigmas times its
 	// own sigma (shareAlarms). Read from the site file by name, as
-	// MaxCurrent is.
+	// MaxCurrent is. MinShare is the smallest share it may carry,
+	// judged the same way (a return cable whose share falls as a leak to
+	// earth beside it grows): from 0 to 1 (1 only with ShareOf), below
+	// MaxShare when both are given; 0 or absent: not judged.
 	MaxShare   *float64 `toml:"max_share" json:"-"`
+	MinShare   *float64 `toml:"min_share" json:"-"`
 	ShareOf    string   `toml:"share_of" json:"-"`
 	ShareFloor *float64 `toml:"share_floor" json:"-"`
 
@@ -278,7 +282,7 @@ func (a *AssetConfig) conductorLimit(name, key string) (v float64, own bool) {
 	return a.Alarms.Step, false
 }
 
-// validateShare checks conductor i's max_share, share_of and
+// validateShare checks conductor i's max_share, min_share, share_of and
 // share_floor (the names share_of gives are checked once all are known).
 func (a *AssetConfig) validateShare(i int) error {
 	c := &a.Conductors[i]
@@ -286,21 +290,32 @@ func (a *AssetConfig) validateShare(i int) error {
 		return &keyError{header: "[[asset.conductor]]", index: i, key: key,
 			err: fmt.Errorf("conductor %q: "+format, append([]any{c.Name}, args...)...)}
 	}
-	if c.MaxShare != nil {
-		v := *c.MaxShare
-		if v < 0 || math.IsNaN(v) || math.IsInf(v, 0) {
-			return bad("max_share", "max_share %v: want a fraction, 0 or more (0.1: a tenth of the current; 0 turns the alarm off)", v)
+	for _, b := range []struct {
+		key, want, eg string
+		v             *float64
+	}{{"max_share", "a fraction, 0 or more", "0.1: a tenth of the current", c.MaxShare},
+		{"min_share", "a fraction from 0 to 1", "0.6: six tenths of the current", c.MinShare}} {
+		if b.v == nil {
+			continue
+		}
+		v := *b.v
+		if v < 0 || math.IsNaN(v) || math.IsInf(v, 0) || b.key == "min_share" && v > 1 {
+			return bad(b.key, "%s %v: want %s (%s; 0 turns the alarm off)", b.key, v, b.want, b.eg)
 		}
 		if v >= 1 && c.ShareOf == "" {
-			return bad("max_share", "max_share %v: a share of the asset's conductors' current together is at most 1; want a fraction under 1 (or share_of naming the conductor to compare with)", v)
+			return bad(b.key, "%s %v: a share of the asset's conductors' current together is at most 1; want a fraction under 1 (or share_of naming the conductor to compare with)", b.key, v)
 		}
 		if c.ShareOf == "" && len(a.Conductors) < 2 {
-			return bad("max_share", "max_share: the asset lists one conductor, whose share of the current is always 1; list the others or give share_of")
+			return bad(b.key, "%s: the asset lists one conductor, whose share of the current is always 1; list the others or give share_of", b.key)
 		}
 	}
+	if c.MaxShare != nil && c.MinShare != nil && *c.MaxShare > 0 && *c.MinShare >= *c.MaxShare {
+		return bad("min_share", "min_share %v is not below max_share %v: no share could lie within both; want min_share under max_share", *c.MinShare, *c.MaxShare)
+	}
+	none := c.MaxShare == nil && c.MinShare == nil
 	if c.ShareOf != "" {
-		if c.MaxShare == nil {
-			return bad("share_of", "share_of %q without max_share: give max_share, the share that raises the alarm", c.ShareOf)
+		if none {
+			return bad("share_of", "share_of %q without max_share or min_share: give the share that raises the alarm", c.ShareOf)
 		}
 		if c.ShareOf == c.Name {
 			return bad("share_of", "share_of names the conductor itself; name another conductor, or leave share_of out for the share of all the asset's conductors")
@@ -310,8 +325,8 @@ func (a *AssetConfig) validateShare(i int) error {
 		if v := *c.ShareFloor; v < 0 || math.IsNaN(v) || math.IsInf(v, 0) {
 			return bad("share_floor", "share_floor %v: want a current in A, 0 or more", v)
 		}
-		if c.MaxShare == nil {
-			return bad("share_floor", "share_floor without max_share: give max_share, the share that raises the alarm")
+		if none {
+			return bad("share_floor", "share_floor without max_share or min_share: give the share that raises the alarm")
 		}
 	}
 	return nil
