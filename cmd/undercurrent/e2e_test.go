@@ -41,6 +41,7 @@ const kSigma = 4
 // the field names the issue specifies (so a renamed field fails here).
 type resultDoc struct {
 	Warnings       []string `json:"warnings"`
+	Notes          []string `json:"notes"`
 	DepthReference struct {
 		Kind        string  `json:"kind"`
 		Z           float64 `json:"z_m"`

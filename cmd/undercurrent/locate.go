@@ -2383,6 +2383,11 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 	// cause (spikes left in, a route fitted as one line) still leads.
 	doc.Warnings = alertsFirst(doc.Warnings, alerts)
 	mainsNotesOrWarnings(doc, sv.mainsNotes)
+	// An AC current read is the net current the sensors see, induced
+	// sheath, armour or trunking currents included: no misfit shows it.
+	if sv.ac && anyCurrent(sv) {
+		doc.Notes = append(doc.Notes, report.NetCurrentCaution)
+	}
 	if err := ctx.Err(); err != nil {
 		return nil, err
 	}

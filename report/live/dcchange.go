@@ -297,8 +297,16 @@ func mad(v []float64) float64 {
 // judges it too, since a conductor's heating, and so its rating, goes
 // with the total RMS; steps are the fundamental's. gap, when above 0, is
 // the time in seconds since the previous window with currents ended (a
-// data outage between them): step alarms say so.
-func (p *processor) currentAlarms(w *window, i int, name string, cur, total float64, split *windowSplit, gap float64) []Alarm {
+// data outage between them): step alarms say so. misfit, when above 0,
+// is a degraded window's misfit (the square root of its reduced
+// chi-square): its step alarms, and those judged against a degraded
+// previous window (prevMisfit), are raised marked Degraded and say that
+// the change may belong to a neighbouring conductor (a model that misses
+// the field lets the fit trade current between conductors close
+// together) and its size is uncertain. They are not held back for a sound
+// window to confirm: a misfit that lasts (an enclosure, a bar the model
+// does not describe) degrades every window, and would silence every step.
+func (p *processor) currentAlarms(w *window, i int, name string, cur, total float64, split *windowSplit, gap, misfit float64) []Alarm {
 	a := p.asset
 	var out []Alarm
 	peak, what := cur, ""
@@ -359,7 +367,11 @@ func (p *processor) currentAlarms(w *window, i int, name string, cur, total floa
 			if own {
 				msg += fmt.Sprintf(" (above its own step limit, %.4g A)", limit)
 			}
-			out = append(out, p.alarm(w, AlarmStep, name, step, limit, msg))
+			deg := degradedStep(misfit, p.prevMisfit, within, len(p.names) > 1)
+			msg += deg
+			al := p.alarm(w, AlarmStep, name, step, limit, msg)
+			al.Degraded = deg != ""
+			out = append(out, al)
 		}
 	}
 	p.prev[name] = cur
@@ -372,4 +384,27 @@ func (p *processor) currentAlarms(w *window, i int, name string, cur, total floa
 		delete(p.prevEnd, name)
 	}
 	return out
+}
+
+// degradedStep is what a step alarm adds when the window it is judged in
+// is degraded (misfit, the square root of its reduced chi-square, above
+// 0) or, for a change since the previous window (within false), when
+// that one was (prev): "" when neither. several says the asset has more
+// than one conductor.
+func degradedStep(misfit, prev float64, within, several bool) string {
+	var what string
+	switch {
+	case misfit > 0 && prev > 0 && !within:
+		what = fmt.Sprintf("this window and the previous one are degraded (the readings miss the held geometry by %.3g and %.3g times their noise)", misfit, prev)
+	case misfit > 0:
+		what = fmt.Sprintf("the window is degraded (the readings miss the held geometry by %.3g times their noise)", misfit)
+	case prev > 0 && !within:
+		what = fmt.Sprintf("the previous window, which it is compared with, is degraded (the readings missed the held geometry by %.3g times their noise)", prev)
+	default:
+		return ""
+	}
+	if several {
+		return "; " + what + ": the fit may have moved current between conductors, so the change may belong to a neighbouring conductor and its size is uncertain; a window that is not degraded confirms it"
+	}
+	return "; " + what + ": the change's size is uncertain; a window that is not degraded confirms it"
 }

@@ -215,7 +215,9 @@
 // gives one, else [asset.alarms]'), imbalance (|sum of the balance
 // conductors' current phasors| above max_imbalance, each taken along the
 // first balance conductor's direction: go and return should
-// cancel; a difference is current leaking to earth), step (change between
+// cancel, a difference being current leaking to earth; of three phases
+// or more the sum is the residual current, from an unbalanced load whose
+// neutral is not among them or from leakage), step (change between
 // consecutive windows, or within a window that holds a change, DC or
 // AC, above step, the conductor's own or the asset's; 0 turns it off),
 // silent (no samples from a sensor in a

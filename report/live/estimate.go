@@ -1,5 +1,7 @@
 package live
 
+import "undercurrent/report"
+
 // Estimate is what the service publishes for one asset and window on
 // uc.est.<asset>, keeps as the latest value in uc_latest and lists in the
 // history API. It is JSON; field names are stable.
@@ -96,6 +98,11 @@ type Estimate struct {
 	// this window's start (a data outage, or windows that failed). A step
 	// alarm of this window compares with that earlier window and says so.
 	AfterGap float64 `json:"after_gap_s,omitempty"`
+	// Caution is set on an AC window with currents: NetCurrentCaution,
+	// that the currents read are the net currents the sensors see,
+	// induced currents in bonded metal around or beside the conductors
+	// included.
+	Caution string `json:"caution,omitempty"`
 	// Ongoing lists the conditions alarmed once at their onset (see
 	// latchedKinds) that still hold in this window, and for how long.
 	Ongoing []OngoingAlarm `json:"ongoing,omitempty"`
@@ -107,6 +114,12 @@ type Estimate struct {
 	// HeaderRevision). A window read again supersedes its lower revisions.
 	Revision int `json:"revision,omitempty"`
 }
+
+// NetCurrentCaution is the caution an AC estimate and an AC asset carry
+// (Estimate.Caution, AssetInfo.Caution): the currents read are the net
+// currents the sensors see, induced currents in bonded metal around or
+// beside the conductors included (see report.NetCurrentCaution).
+const NetCurrentCaution = report.NetCurrentCaution
 
 // ConductorEstimate is one conductor's current in a window.
 type ConductorEstimate struct {
@@ -155,6 +168,16 @@ type HarmonicCurrent struct {
 	Order        int     `json:"order"`
 	Current      float64 `json:"current_a"`
 	CurrentSigma float64 `json:"current_sigma_a"`
+	// Phase is degrees, the harmonic's at the window's middle against
+	// cos(2 pi Order f t), f and t as the fundamental's
+	// (ConductorEstimate.Phase), so that the harmonics of order h of
+	// several conductors add as phasors: the third harmonics of three
+	// phases 120 degrees apart come out in phase, and their phasor sum
+	// is the third-harmonic current that returns through the neutral.
+	// PhaseSigma is its one-sigma error (180 when the harmonic is lost
+	// in the noise).
+	Phase      float64 `json:"phase_deg"`
+	PhaseSigma float64 `json:"phase_sigma_deg"`
 }
 
 // WindowChange is a change of current within a window (DC, or the RMS
@@ -241,6 +264,10 @@ type Alarm struct {
 	Sigma          float64 `json:"sigma,omitempty"`
 	ShareOf        string  `json:"share_of,omitempty"`
 	ShareOfCurrent float64 `json:"share_of_a,omitempty"`
+	// Degraded marks a step alarm judged in a degraded window, or
+	// against one (the message says which): the change may belong to a
+	// neighbouring conductor, and its size is uncertain.
+	Degraded bool `json:"degraded,omitempty"`
 	// fitFailed marks the degraded alarm of a window that could not be
 	// solved (not encoded: its message and threshold 0 tell it).
 	fitFailed bool
@@ -265,7 +292,7 @@ type OngoingAlarm struct {
 // Alarm kinds.
 const (
 	AlarmOverCurrent = "over-current" // |I| above alarms.max_current
-	AlarmImbalance   = "imbalance"    // go/return currents do not cancel: leakage
+	AlarmImbalance   = "imbalance"    // the balance conductors' currents do not cancel: leakage, or an unbalanced load
 	AlarmStep        = "step"         // current changed by more than alarms.step (between windows or within one)
 	AlarmSilent      = "silent"       // sensor sent nothing in the window
 	AlarmStuck       = "stuck"        // sensor repeated one value on an axis

@@ -261,11 +261,18 @@ type AssetInfo struct {
 	// commissioned: each conductor's point, direction, depth and azimuth
 	// with their sigmas from the commissioning fit.
 	Geometry *CommissionedGeometry `json:"geometry,omitempty"`
+	// Caution is NetCurrentCaution on an AC asset: its currents are the
+	// net currents the sensors see, induced currents in bonded metal
+	// around or beside the conductors included.
+	Caution string `json:"caution,omitempty"`
 }
 
 func (s *Service) assetInfo(ctx context.Context, a *AssetConfig) (AssetInfo, error) {
 	ai := AssetInfo{Name: a.Name, Description: a.Description, Mode: a.Mode, Frequency: a.Frequency,
 		Window: a.Window.String(), Model: a.Model, Sensors: []string{}, Conductors: []string{}, Start: a.Start.String()}
+	if a.Mode == "ac" {
+		ai.Caution = NetCurrentCaution
+	}
 	for _, sn := range a.Sensors {
 		ai.Sensors = append(ai.Sensors, sn.Name)
 	}

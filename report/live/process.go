@@ -49,7 +49,12 @@ type processor struct {
 	// prevAt is the end of the window prev was taken from (0: not
 	// known), so that a step across a gap says so (currentAlarms).
 	prevAt float64
-	worker string
+	// prevMisfit is the misfit of the window prev was taken from when
+	// it was degraded (the square root of its reduced chi-square; 0 when
+	// it was not, or not known: not checkpointed), so that a step judged
+	// against it says so (currentAlarms).
+	prevMisfit float64
+	worker     string
 	// revision is the asset's read revision, copied into every estimate
 	// and alarm; the worker keeps it equal to its checkpoint's.
 	revision int
@@ -600,6 +605,10 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 		if sub, bad, why, reds := p.isolate(r); sub != nil {
 			if o2, err2 := p.est.Solve(&sub.in); err2 == nil && len(o2.Current) == len(p.names) && nonFiniteOutput(o2) == "" {
 				frozen := r.frozen
+				coil := map[string]string{}
+				for _, name := range bad {
+					coil[name] = p.coilHint(r, name, o2)
+				}
 				r, out = sub, o2
 				for k, name := range bad {
 					if frozen[name] {
@@ -609,8 +618,11 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 						continue
 					}
 					r.missing[name] = "inconsistent with the other sensors' readings (knocked, moved, or its offset changed?): " + why[k]
+					if coil[name] != "" {
+						r.missing[name] = "inconsistent with the other sensors' readings (knocked, moved, its offset changed, or a coil's voltages?): " + why[k]
+					}
 					alarms = append(alarms, p.alarm(w, AlarmInconsistent, name, reds[k], a.Alarms.MaxChi2,
-						fmt.Sprintf("sensor %s's reading is inconsistent with the other sensors': %s; the window is solved without it. Check the sensor (turned or moved on its mount, offset drift)", name, why[k])))
+						fmt.Sprintf("sensor %s's reading is inconsistent with the other sensors': %s; the window is solved without it. Check the sensor (turned or moved on its mount, offset drift)%s", name, why[k], coil[name])))
 				}
 				e.Missing, e.Sensors, e.Samples = r.missing, len(r.used), r.samples
 				jred = judge(r, out)
@@ -696,6 +708,10 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 	// A window with currents that does not follow the previous one
 	// (a data outage, failed windows between) is compared with it across
 	// the gap: marked, and its step alarms say so.
+	// A degraded window's currents may have traded current between
+	// conductors (the model misses the field): its step alarms say so
+	// (misfit, above).
+	prevMisfit := p.prevMisfit
 	gap := 0.0
 	if p.prevAt > 0 && len(p.prev) > 0 {
 		if g := w.Start - p.prevAt; g > 0.5*(w.End-w.Start) {
@@ -734,12 +750,12 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 			total = tot
 			e.Conductors[len(e.Conductors)-1] = c
 		}
-		alarms = append(alarms, p.currentAlarms(w, i, name, c.Current, total, split, gap)...)
+		alarms = append(alarms, p.currentAlarms(w, i, name, c.Current, total, split, gap, misfit)...)
 	}
 	e.CurrentCovariance = currentCovariance(out.CurrentCov, scale, gCov, len(p.names))
 	alarms = append(alarms, p.shareAlarms(w, e)...)
 	prevAt := p.prevAt
-	p.prevAt = w.End
+	p.prevAt, p.prevMisfit = w.End, misfit
 	if len(a.Alarms.Balance) > 1 && a.Alarms.MaxImbalance > 0 {
 		// The currents are summed along one direction, the first balance
 		// conductor's: a conductor whose direction points the other way
@@ -765,19 +781,39 @@ func (p *processor) solve(w *window, r *reduced) (*Estimate, []Alarm) {
 			p.setLevel(AlarmImbalance, "", imb)
 		}
 		if all && imb > a.Alarms.MaxImbalance {
-			alarms = append(alarms, p.alarm(w, AlarmImbalance, "", imb, a.Alarms.MaxImbalance,
-				fmt.Sprintf("go and return currents differ by %.4g A (leakage?)", imb)))
+			alarms = append(alarms, p.alarm(w, AlarmImbalance, "", imb, a.Alarms.MaxImbalance, imbalanceMessage(a.Mode, a.Alarms.Balance, imb)))
 		}
+	}
+	if a.Mode == "ac" {
+		e.Caution = NetCurrentCaution
 	}
 	if what := nonFiniteEstimate(e, alarms); what != "" {
 		// Not encodable (JSON has no infinities): the window fails
 		// rather than stopping the asset. The step alarm's previous
 		// currents are left as they were before the window.
 		p.solveErr = fmt.Errorf("the estimate has a non-finite %s", what)
-		p.prev, p.prevEnd, p.prevAt = prev, prevEnd, prevAt
+		p.prev, p.prevEnd, p.prevAt, p.prevMisfit = prev, prevEnd, prevAt, prevMisfit
 		return p.failed(w, e, r.alarms, fmt.Sprintf("no estimate: the window's estimate came out with a non-finite %s (see the log)", what))
 	}
 	return e, alarms
+}
+
+// imbalanceMessage words an imbalance alarm of imb A for what the balance
+// conductors are: a go and return pair, whose currents differ by what
+// leaves the circuit, or three or more conductors (the phases of a
+// three-phase circuit, a feed and its returns), whose sum (for AC their
+// phasor sum) is the residual current, which an unbalanced load as well
+// as a leak gives wherever the circuit's neutral or other return is not
+// among them.
+func imbalanceMessage(mode string, balance []string, imb float64) string {
+	if len(balance) == 2 {
+		return fmt.Sprintf("go and return currents differ by %.4g A (leakage?)", imb)
+	}
+	sum := "sum"
+	if mode == "ac" {
+		sum = "phasor sum"
+	}
+	return fmt.Sprintf("the %s of the currents of %s (the residual current) is %.4g A: an unbalanced load returning by a neutral not among them, or leakage (current returning by another path)", sum, strings.Join(balance, ", "), imb)
 }
 
 // currentCovariance is the estimate's covariance of the n conductors'
@@ -812,7 +848,7 @@ func (p *processor) failed(w *window, e *Estimate, alarms []Alarm, msg string) (
 	e.Quality = "failed"
 	e.Conductors = []ConductorEstimate{}
 	e.RMS, e.Chi2, e.DOF, e.Background, e.SigmaScale, e.Implausible = 0, 0, 0, nil, 0, nil
-	e.Chi2Geometry, e.Change, e.CurrentCovariance = 0, nil, nil
+	e.Chi2Geometry, e.Change, e.CurrentCovariance, e.Caution = 0, nil, nil, ""
 	out := append([]Alarm(nil), alarms...)
 	al := p.alarm(w, AlarmDegraded, "", 0, 0, msg)
 	al.fitFailed = true
@@ -1067,7 +1103,14 @@ func (p *processor) harmonicCurrents(r *reduced, scale float64) [][]HarmonicCurr
 			return nil
 		}
 		for i := range p.names {
-			out[i] = append(out[i], HarmonicCurrent{Order: h + 2, Current: math.Abs(o.Current[i]), CurrentSigma: o.CurrentSigma[i] * scale})
+			hc := HarmonicCurrent{Order: h + 2, Current: math.Abs(o.Current[i]), CurrentSigma: o.CurrentSigma[i] * scale, PhaseSigma: 180}
+			if i < len(o.Phase) && i < len(o.PhaseSigma) {
+				// The reference's error turns harmonic h by h times
+				// the fundamental's.
+				hc.Phase = o.Phase[i]
+				hc.PhaseSigma = math.Min(180, math.Hypot(o.PhaseSigma[i]*scale, float64(h+2)*r.refSigma))
+			}
+			out[i] = append(out[i], hc)
 		}
 	}
 	return out

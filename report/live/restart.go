@@ -268,7 +268,7 @@ func (w *assetWorker) applyRestart(req *RestartStatus, rev uint64) error {
 		w.asm.lastSeq = req.Seq - 1
 		w.proc.prev = map[string]float64{}
 		w.proc.prevEnd, w.proc.frozen = nil, nil
-		w.proc.active, w.proc.prevAt = nil, 0
+		w.proc.active, w.proc.prevAt, w.proc.prevMisfit = nil, 0, 0
 		w.pending, w.pendDur = nil, 0
 		// The silence already alarmed is the same silence after the
 		// re-read: it is not alarmed again (silenceAtStart).
