@@ -672,6 +672,10 @@ type survey struct {
 	// warning, the warning and its groups' directions of travel, so that
 	// the warning can be reworded once the fit is known (alongGroups).
 	groupLines []groupLines
+	// unread holds, for each log read without a group column, its
+	// columns that fed nothing, where the span warning looks for the one
+	// --group-by should have named (groupColumnHint).
+	unread []unreadColumns
 	// geodetic says which logs have latitude and longitude columns (the
 	// logs --origin places), and originFrom is the log whose origin the
 	// document's frame took.
@@ -950,7 +954,11 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			sv.alerts = append(sv.alerts, w)
 		}
 		if o.groupBy != "" && s.Group == nil {
-			return nil, fmt.Errorf("%s has no column %q to group by (see \"undercurrent inspect %s\" for its columns)", path, o.groupBy, path)
+			return nil, noGroupColumnError(path, o.groupBy, s)
+		}
+		if s.Group == nil && len(s.Unread) > 0 {
+			// For the span warning's hint (groupColumnHint).
+			sv.unread = append(sv.unread, unreadColumns{path, s.Unread})
 		}
 		// Rows out of time order within a group (--time-order any) are
 		// put in order (input.go sortGroupRows).
@@ -2264,7 +2272,7 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 	}
 	if o.groupBy == "" && !sv.groupWarned {
 		if w := spanWarning(sv); w != "" {
-			alerts = append(alerts, w)
+			alerts = append(alerts, w+groupColumnHint(o, sv))
 		}
 	}
 	if w := splitGroupsWarning(sv); w != "" {
