@@ -1,10 +1,14 @@
 package main
 
 import (
+	"fmt"
+	"io"
+	"math"
 	"os"
 	"path/filepath"
 	"strings"
 	"testing"
+	"time"
 
 	"undercurrent/ingest"
 )
@@ -117,5 +121,49 @@ func TestLooksLikeGroups(t *testing.T) {
 		if got := looksLikeGroups(c.g); got != c.want {
 			t.Errorf("%s: looksLikeGroups = %v, want %v", c.name, got, c.want)
 		}
+	}
+}
+
+// TestLocateHelpFirstExampleRuns: locate's first help example, the common
+// case of a logger's own column names, latitude and longitude, a field in
+// microtesla and a traverse column, runs as written on such a log (the
+// Kestrel Moor survey written so) and fits every traverse.
+func TestLocateHelpFirstExampleRuns(t *testing.T) {
+	var b strings.Builder
+	c := commands["locate"]
+	c.printHelp(&b, c.flagSet(io.Discard))
+	lines := exampleLines(b.String())
+	if len(lines) == 0 || !strings.Contains(lines[0], "your-log.csv") {
+		t.Fatalf("locate's first example %q: want one on your-log.csv", lines)
+	}
+	s := kestrelMoor(t)
+	dir := t.TempDir()
+	origin := ingest.Geodetic{Lat: 54.3125, Lon: -2.0883}
+	var text strings.Builder
+	text.WriteString("Time,GPS_Lat,GPS_Lon,MagX,MagY,MagZ,Line\n")
+	for i := range s.Len() {
+		p := origin.FromLocal([3]float64{s.X[i], s.Y[i], s.Z[i]})
+		ts := time.UnixMilli(int64(math.Round(s.Time[i] * 1000))).In(time.FixedZone("", 3600))
+		fmt.Fprintf(&text, "%s,%.9f,%.9f,%.6f,%.6f,%.6f,%s\n", ts.Format("2006-01-02T15:04:05.000-07:00"),
+			p.Lat, p.Lon, s.Bx[i]/1000, s.By[i]/1000, s.Bz[i]/1000, s.Group[i])
+	}
+	log := filepath.Join(dir, "your-log.csv")
+	if err := os.WriteFile(log, []byte(text.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	p := parseExample(t, lines[0])
+	args := []string{"locate"}
+	for _, a := range p.args {
+		switch a {
+		case "your-log.csv":
+			a = log
+		case "results":
+			a = filepath.Join(dir, "results")
+		}
+		args = append(args, a)
+	}
+	out := mustCLI(t, args...)
+	if !strings.Contains(out, "fitted 21 group(s)") || !strings.Contains(out, "21 sound") {
+		t.Errorf("locate's first example on the survey written as your-log.csv:\n%s", out)
 	}
 }

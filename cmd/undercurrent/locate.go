@@ -424,14 +424,18 @@ The estimates are not a verified locate: confirm before excavation by
 approved methods, treat every conductor as live; local codes and licensed
 practice prevail.
 
-In the examples, survey.csv, base.csv and cal.json are the logs and the
-calibration of the walk-through in README.md, out/demo/fenwick-lane.csv is
-the demo's log, and two.csv is written by "undercurrent simulate
-testdata/scenarios/two-conductors.toml -o two.csv"; your-coil-log.csv and
-your-coil-response.csv stand for your own coil log and response table,
-which no command here writes.
+In the examples, your-log.csv stands for your own log, here with columns
+Time, GPS_Lat, GPS_Lon (WGS84 degrees), MagX, MagY, MagZ (microtesla) and
+Line (the traverse's name), with the sensor carried 0.25 m above the
+ground (the first example); survey.csv, base.csv and cal.json are the logs
+and the calibration of the walk-through in README.md,
+out/demo/fenwick-lane.csv is the demo's log, and two.csv is written by
+"undercurrent simulate testdata/scenarios/two-conductors.toml -o two.csv";
+your-coil-log.csv and your-coil-response.csv stand for your own coil log
+and response table, which no command here writes.
 
 Examples:
+  undercurrent locate --column lat=GPS_Lat,lon=GPS_Lon,bx=MagX,by=MagY,bz=MagZ --unit bx=uT,by=uT,bz=uT --group-by Line --sensor-height 0.25 your-log.csv -o results
   undercurrent locate --group-by group survey.csv
   undercurrent locate --base base.csv --calibration cal.json --group-by group survey.csv -o results
   undercurrent locate --freq 50 --window 0.1 --group-by group --sensor-height 0.3 --min-cover 0.6 --cover-code "UK 11 kV practice" out/demo/fenwick-lane.csv -o results
