@@ -518,8 +518,18 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 		if len(cfg.mappingText) > 0 {
 			tried = strings.Join(cfg.mappingText, ", ")
 		}
-		return nil, fileErr(file, nil, "no column for %s (columns found: %s; mapping tried: %s; give one with a column mapping such as %s=NAME, on the command line --column %s=NAME)",
-			strings.Join(missing, ", "), columnList(header), tried, missing[0], missing[0])
+		// A field column mapped by a name that states no unit is read in
+		// nT: a log in uT so read gave currents 1000 times too small
+		// (found in review), so the advice names the unit too.
+		unit := ""
+		for _, m := range missing {
+			if c, _ := canonIndex(m); kindOf(c) == kindField {
+				unit = fmt.Sprintf(", and its unit with a unit option %s=U (on the command line --unit %s=U) unless the name states it (%s_uT, \"%s (uT)\"), else it is read in nT", m, m, strings.ToUpper(m[:1])+m[1:], strings.ToUpper(m[:1])+m[1:])
+				break
+			}
+		}
+		return nil, fileErr(file, nil, "no column for %s (columns found: %s; mapping tried: %s; give one with a column mapping such as %s=NAME, on the command line --column %s=NAME%s)",
+			strings.Join(missing, ", "), columnList(header), tried, missing[0], missing[0], unit)
 	}
 
 	// Units.
