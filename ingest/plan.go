@@ -255,6 +255,23 @@ func InputFrame(r Reader) (f Frame, stated, ok bool) {
 	return FrameENU, false, false
 }
 
+// InputColumns returns the input's column names as a reader of this
+// package found them, and those of them that feed no canonical column
+// (not read). ok is false for readers of other packages.
+func InputColumns(r Reader) (columns, unread []string, ok bool) {
+	p := planOf(r)
+	if p == nil {
+		return nil, nil, false
+	}
+	columns = append([]string(nil), p.header...)
+	for i, h := range p.header {
+		if !p.uses(i) {
+			unread = append(unread, h)
+		}
+	}
+	return columns, unread, true
+}
+
 // TimeBasis says how a reader of this package took the input's times,
 // complete once Next has returned false: naive when they were written
 // without a UTC offset (text, or Arrow timestamps without a time zone)

@@ -429,14 +429,18 @@ The estimates are not a verified locate: confirm before excavation by
 approved methods, treat every conductor as live; local codes and licensed
 practice prevail.
 
-In the examples, survey.csv, base.csv and cal.json are the logs and the
-calibration of the walk-through in README.md, out/demo/fenwick-lane.csv is
-the demo's log, and two.csv is written by "undercurrent simulate
-testdata/scenarios/two-conductors.toml -o two.csv"; your-coil-log.csv and
-your-coil-response.csv stand for your own coil log and response table,
-which no command here writes.
+In the examples, your-log.csv stands for your own log, here with columns
+Time, GPS_Lat, GPS_Lon (WGS84 degrees), MagX, MagY, MagZ (microtesla) and
+Line (the traverse's name), with the sensor carried 0.25 m above the
+ground (the first example); survey.csv, base.csv and cal.json are the logs
+and the calibration of the walk-through in README.md,
+out/demo/fenwick-lane.csv is the demo's log, and two.csv is written by
+"undercurrent simulate testdata/scenarios/two-conductors.toml -o two.csv";
+your-coil-log.csv and your-coil-response.csv stand for your own coil log
+and response table, which no command here writes.
 
 Examples:
+  undercurrent locate --column lat=GPS_Lat,lon=GPS_Lon,bx=MagX,by=MagY,bz=MagZ --unit bx=uT,by=uT,bz=uT --group-by Line --sensor-height 0.25 your-log.csv -o results
   undercurrent locate --group-by group survey.csv
   undercurrent locate --base base.csv --calibration cal.json --group-by group survey.csv -o results
   undercurrent locate --freq 50 --window 0.1 --group-by group --sensor-height 0.3 --min-cover 0.6 --cover-code "UK 11 kV practice" out/demo/fenwick-lane.csv -o results
@@ -677,6 +681,10 @@ type survey struct {
 	// warning, the warning and its groups' directions of travel, so that
 	// the warning can be reworded once the fit is known (alongGroups).
 	groupLines []groupLines
+	// unread holds, for each log read without a group column, its
+	// columns that fed nothing, where the span warning looks for the one
+	// --group-by should have named (groupColumnHint).
+	unread []unreadColumns
 	// geodetic says which logs have latitude and longitude columns (the
 	// logs --origin places), and originFrom is the log whose origin the
 	// document's frame took.
@@ -962,7 +970,11 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			sv.alerts = append(sv.alerts, w)
 		}
 		if o.groupBy != "" && s.Group == nil {
-			return nil, fmt.Errorf("%s has no column %q to group by (see \"undercurrent inspect %s\" for its columns)", path, o.groupBy, path)
+			return nil, noGroupColumnError(path, o.groupBy, s)
+		}
+		if s.Group == nil && len(s.Unread) > 0 {
+			// For the span warning's hint (groupColumnHint).
+			sv.unread = append(sv.unread, unreadColumns{path, s.Unread})
 		}
 		// Rows out of time order within a group (--time-order any) are
 		// put in order (input.go sortGroupRows).
@@ -2264,7 +2276,7 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 	}
 	if o.groupBy == "" && !sv.groupWarned {
 		if w := spanWarning(sv); w != "" {
-			alerts = append(alerts, w)
+			alerts = append(alerts, w+groupColumnHint(o, sv))
 		}
 	}
 	if w := splitGroupsWarning(sv); w != "" {
