@@ -800,9 +800,10 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch, plain bool) 
 				nextQ = bytes.IndexByte(data, '"')
 			}
 		}
-		if n := len(ln); n > 0 && ln[n-1] == '\r' {
-			ln = ln[:n-1]
-		}
+		// Every CR before the LF: "\r\r\n" is what a CSV writer that
+		// ends rows in CRLF writes through a text-mode file on Windows,
+		// and a CR kept ended the last field (group "T01\r").
+		ln = bytes.TrimRight(ln, "\r")
 		if len(ln) == 0 {
 			continue
 		}
@@ -1270,7 +1271,7 @@ func (r *csvReader) timeTextAt(j csvJob, line int) string {
 	if e := bytes.IndexByte(data, '\n'); e >= 0 {
 		data = data[:e]
 	}
-	data = bytes.TrimSuffix(data, []byte{'\r'})
+	data = bytes.TrimRight(data, "\r")
 	c := r.pl.src[cTime]
 	if c < 0 {
 		return ""

@@ -126,7 +126,7 @@ func TestCSVErrors(t *testing.T) {
 		{"empty file", "", nil, `: empty file`},
 		{"only comments", "# nothing\n\n", nil, `: no header line`},
 		{"missing field columns", "time,Bx,By,Bvert\n0,1,2,3\n", []Option{WithColumns("bx=Bx")},
-			`:1: no column for bz (columns found: time, Bx, By, Bvert; mapping tried: bx=Bx; give one with a column mapping such as bz=NAME, on the command line --column bz=NAME)`},
+			`:1: no column for bz (columns found: time, Bx, By, Bvert; mapping tried: bx=Bx; give one with a column mapping such as bz=NAME, on the command line --column bz=NAME, and its unit with a unit option bz=U (on the command line --unit bz=U) unless the name states it (Bz_uT, "Bz (uT)"), else it is read in nT)`},
 		{"mapping names an absent column", "time,bx,by,bz\n", []Option{WithColumns("bz=Bz_nT")}, `mapping bz=Bz_nT: no column "Bz_nT"`},
 		{"time backwards", "time,bx,by,bz\n0,1,2,3\n2,1,2,3\n1.5,1,2,3\n", nil, `:4: column time: time goes backwards: 1.5 after 2`},
 		{"NaN", "time,bx,by,bz\n0,1,NaN,3\n", nil, `:2: column by: missing value "NaN"; missing values are not allowed by default`},

@@ -807,9 +807,7 @@ func guessUnits(pl *plan, in *Inspection, mags []float64, vecs [][3]float64) []s
 	}
 	if pl.hasPos && !pl.geodetic {
 		x, y := colStats(in, ColX), colStats(in, ColY)
-		if x != nil && y != nil && x.Min != nil && y.Min != nil &&
-			math.Abs(*x.Min) <= 180 && math.Abs(*x.Max) <= 180 && math.Abs(*y.Min) <= 90 && math.Abs(*y.Max) <= 90 &&
-			*x.Max-*x.Min < 0.05 && *y.Max-*y.Min < 0.05 && (*x.Max-*x.Min)+(*y.Max-*y.Min) > 0 && math.Abs(*y.Min) > 1 {
+		if x != nil && y != nil && x.Min != nil && y.Min != nil && DegreesLike(*x.Min, *x.Max, *y.Min, *y.Max) {
 			w = append(w, "positions: x and y span less than 0.05 and look like longitude and latitude in degrees (try columns lon=...,lat=...)")
 		}
 	}
@@ -823,6 +821,18 @@ func guessUnits(pl *plan, in *Inspection, mags []float64, vecs [][3]float64) []s
 		w = append(w, "missing values: "+strings.Join(miss, ", "))
 	}
 	return w
+}
+
+// DegreesLike reports whether positions x in [xmin, xmax] and y in
+// [ymin, ymax], read as metres, look like longitude and latitude in
+// degrees: both within the ranges of longitude and latitude, y more than
+// a degree from the equator, and both spanning less than 0.05 (about 5 km
+// as degrees, 5 cm as metres) but not nothing. A survey in metres moves
+// more than 5 cm; lat/lon read as x, y put the whole survey inside a few
+// centimetres and its currents millions of times off.
+func DegreesLike(xmin, xmax, ymin, ymax float64) bool {
+	return math.Abs(xmin) <= 180 && math.Abs(xmax) <= 180 && math.Abs(ymin) <= 90 && math.Abs(ymax) <= 90 &&
+		xmax-xmin < 0.05 && ymax-ymin < 0.05 && (xmax-xmin)+(ymax-ymin) > 0 && math.Abs(ymin) > 1
 }
 
 // turningTotalField reports whether the field of a log keeps its size

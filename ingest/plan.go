@@ -255,6 +255,23 @@ func InputFrame(r Reader) (f Frame, stated, ok bool) {
 	return FrameENU, false, false
 }
 
+// InputColumns returns the input's column names as a reader of this
+// package found them, and those of them that feed no canonical column
+// (not read). ok is false for readers of other packages.
+func InputColumns(r Reader) (columns, unread []string, ok bool) {
+	p := planOf(r)
+	if p == nil {
+		return nil, nil, false
+	}
+	columns = append([]string(nil), p.header...)
+	for i, h := range p.header {
+		if !p.uses(i) {
+			unread = append(unread, h)
+		}
+	}
+	return columns, unread, true
+}
+
 // TimeBasis says how a reader of this package took the input's times,
 // complete once Next has returned false: naive when they were written
 // without a UTC offset (text, or Arrow timestamps without a time zone)
@@ -501,8 +518,18 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 		if len(cfg.mappingText) > 0 {
 			tried = strings.Join(cfg.mappingText, ", ")
 		}
-		return nil, fileErr(file, nil, "no column for %s (columns found: %s; mapping tried: %s; give one with a column mapping such as %s=NAME, on the command line --column %s=NAME)",
-			strings.Join(missing, ", "), columnList(header), tried, missing[0], missing[0])
+		// A field column mapped by a name that states no unit is read in
+		// nT: a log in uT so read gave currents 1000 times too small
+		// (found in review), so the advice names the unit too.
+		unit := ""
+		for _, m := range missing {
+			if c, _ := canonIndex(m); kindOf(c) == kindField {
+				unit = fmt.Sprintf(", and its unit with a unit option %s=U (on the command line --unit %s=U) unless the name states it (%s_uT, \"%s (uT)\"), else it is read in nT", m, m, strings.ToUpper(m[:1])+m[1:], strings.ToUpper(m[:1])+m[1:])
+				break
+			}
+		}
+		return nil, fileErr(file, nil, "no column for %s (columns found: %s; mapping tried: %s; give one with a column mapping such as %s=NAME, on the command line --column %s=NAME%s)",
+			strings.Join(missing, ", "), columnList(header), tried, missing[0], missing[0], unit)
 	}
 
 	// Units.

@@ -36,6 +36,12 @@ type Samples struct {
 	// Absent names the position columns (x, y, z) the log has no column
 	// for although it has others: they hold 0 for every row (MetaAbsent).
 	Absent []string
+	// Columns are the input's column names as it gives them, and Unread
+	// those of them that feed no column here (a traverse's name the
+	// caller did not ask for, a GPS fix quality): for messages that name
+	// the column a flag should have given. Set by Collect for readers of
+	// this package (InputColumns).
+	Columns, Unread []string
 	// Warnings are the reader's warnings (see Warnings): problems with the
 	// input that did not stop the reading. Callers should show them.
 	Warnings []string
@@ -131,6 +137,7 @@ func Collect(r Reader) (*Samples, error) {
 	if p := planOf(r); p != nil {
 		s.Source = p.file
 		s.InFrame, s.InFrameStated = p.inFrame, p.frameStated
+		s.Columns, s.Unread, _ = InputColumns(r)
 	}
 	applySchemaMeta(s, sc)
 	for r.Next() {

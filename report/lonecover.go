@@ -86,19 +86,20 @@ func (d *Document) addLoneCover(fits []Fit, r *route.Route, rs *route.Settings, 
 		}
 	}
 	// markAt is what station s's fit shows of the lines of (indices into
-	// lones): MarkShort, with the shallow lines in line with one of them,
-	// when any is; else MarkClear when one in line with them has enough
-	// cover; else MarkUnseen, a fit that does not show them, which bounds
-	// a run but says nothing of their cover there; MarkSkip for a station
-	// the route's own check does not use.
-	markAt := func(s int, of []int) (route.Mark, []int) {
+	// lones), judged in line with them by in (loneInLine to merge,
+	// loneNear to bracket): MarkShort, with the shallow lines in line
+	// with one of them, when any is; else MarkClear when one in line with
+	// them has enough cover; else MarkUnseen, a fit that does not show
+	// them, which bounds a run but says nothing of their cover there;
+	// MarkSkip for a station the route's own check does not use.
+	markAt := func(s int, of []int, in func(a, c *loneLine) bool) (route.Mark, []int) {
 		if q := &r.Stations[s]; !q.OK || q.Dipole {
 			return route.MarkSkip, nil
 		}
 		m := route.MarkUnseen
 		var short []int
 		for b := range lones {
-			if lones[b].station != s || !slices.ContainsFunc(of, func(a int) bool { return loneInLine(&lones[a], &lones[b]) }) {
+			if lones[b].station != s || !slices.ContainsFunc(of, func(a int) bool { return in(&lones[a], &lones[b]) }) {
 				continue
 			}
 			switch lones[b].mark {
@@ -114,20 +115,42 @@ func (d *Document) addLoneCover(fits []Fit, r *route.Route, rs *route.Settings, 
 		return m, short
 	}
 	const tol = 1e-6 // m: a repeat lies at its station's own chainage
-	// next is the nearest station from s on by step (+1 or -1) that
-	// bounds or continues a run whose end station is end and end lines
-	// of, with its mark: stations the check skips are passed over, and so
-	// is a repeat of end at its chainage that does not show the lines.
-	// -1 when none.
-	next := func(s, step, end int, of []int) (int, route.Mark, []int) {
-		for ; s >= 0 && s < len(r.Stations); s += step {
-			m, short := markAt(s, of)
-			if m == route.MarkSkip || m == route.MarkUnseen && math.Abs(r.Stations[s].Chainage-r.Stations[end].Chainage) < tol {
+	// next is the nearest station after s that bounds or continues a run
+	// whose end station is s and end lines of, with its mark by
+	// loneInLine: stations the check skips are passed over, and so is a
+	// repeat of s at its chainage that does not show the lines. -1 when
+	// none.
+	next := func(s int, of []int) (int, route.Mark, []int) {
+		for i := s + 1; i < len(r.Stations); i++ {
+			m, short := markAt(i, of, loneInLine)
+			if m == route.MarkSkip || m == route.MarkUnseen && math.Abs(r.Stations[i].Chainage-r.Stations[s].Chainage) < tol {
 				continue
 			}
-			return s, m, short
+			return i, m, short
 		}
 		return -1, route.MarkSkip, nil
+	}
+	// nearMarks are the marks of the route's stations for the run of
+	// lines members (indices into lones) at stations (route order), each
+	// other station's by loneNear, the tracks' gate, as the bracket was
+	// before fix-fx22c: a repeat of a run's station at its chainage that
+	// does not show the line bounds nothing.
+	nearMarks := func(members, stations []int) []route.Mark {
+		marks := make([]route.Mark, len(r.Stations))
+		for s := range r.Stations {
+			if slices.Contains(stations, s) {
+				marks[s] = route.MarkShort
+				continue
+			}
+			m, _ := markAt(s, members, loneNear)
+			if m == route.MarkUnseen && slices.ContainsFunc(stations, func(k int) bool {
+				return math.Abs(r.Stations[s].Chainage-r.Stations[k].Chainage) < tol
+			}) {
+				m = route.MarkSkip
+			}
+			marks[s] = m
+		}
+		return marks
 	}
 	stop := func(i int, unseen bool) route.Stop {
 		return route.Stop{Name: r.Stations[i].Key, Chainage: r.Stations[i].Chainage, Unseen: unseen}
@@ -139,56 +162,44 @@ func (d *Document) addLoneCover(fits []Fit, r *route.Route, rs *route.Settings, 
 			continue
 		}
 		// The run: lines at successive stations, each in line with one of
-		// the station's before it, as far as a station that does not show
-		// the line shallow.
+		// the station's before it (loneInLine), as far as a station that
+		// does not show the line shallow.
 		members := []int{a}
 		done[a] = true
-		run := route.CoverRun{Members: []int{lones[a].station}, Before: -1, After: -1}
-		marks := make([]route.Mark, len(r.Stations))
-		marks[lones[a].station] = route.MarkShort
+		stations := []int{lones[a].station}
 		for cur := []int{a}; ; {
-			end := lones[cur[0]].station
-			s, m, short := next(end+1, 1, end, cur)
-			if s < 0 {
+			s, m, short := next(lones[cur[0]].station, cur)
+			if s < 0 || m != route.MarkShort {
 				break
 			}
-			if m == route.MarkShort {
-				var fresh []int
-				for _, b := range short {
-					if !done[b] {
-						done[b] = true
-						fresh = append(fresh, b)
-					}
+			var fresh []int
+			for _, b := range short {
+				if !done[b] {
+					done[b] = true
+					fresh = append(fresh, b)
 				}
-				if len(fresh) > 0 {
-					members = append(members, fresh...)
-					run.Members = append(run.Members, s)
-					marks[s] = m
-					cur = fresh
-					continue
-				}
-				m = route.MarkUnseen // taken by another run already
 			}
-			run.After, marks[s] = s, m
-			break
-		}
-		first := lones[a].station
-		if s, m, _ := next(first-1, -1, first, []int{a}); s >= 0 {
-			if m == route.MarkShort {
-				// Not met: an earlier run would have taken a. Bounds it,
-				// as a fit that does not show this run's line.
-				m = route.MarkUnseen
+			if len(fresh) == 0 {
+				break // taken by another run already
 			}
-			run.Before, marks[s] = s, m
+			members = append(members, fresh...)
+			stations = append(stations, s)
+			cur = fresh
 		}
-		// The other stations whose fits show the line.
+		// The other stations whose fits show the line: by the tracks'
+		// gate (loneNear), as before fix-fx22c, not by the merge's
+		// stricter test. The merge test, with sigmas of hundredths of a
+		// degree and about a millimetre, called the neighbouring fit of a
+		// service turning 3 degrees between traverses one that "does not
+		// show the line" and dropped the note that it shows it too
+		// (found in review).
 		var others []string
 		for b := range lones {
 			k := r.Stations[lones[b].station].Key
-			if slices.Contains(run.Members, lones[b].station) || len(others) > 0 && others[len(others)-1] == k {
+			if slices.Contains(stations, lones[b].station) || len(others) > 0 && others[len(others)-1] == k {
 				continue
 			}
-			if slices.ContainsFunc(members, func(m int) bool { return loneInLine(&lones[m], &lones[b]) }) {
+			if slices.ContainsFunc(members, func(m int) bool { return loneNear(&lones[m], &lones[b]) }) {
 				others = append(others, k)
 			}
 		}
@@ -220,18 +231,29 @@ func (d *Document) addLoneCover(fits []Fit, r *route.Route, rs *route.Settings, 
 		}
 		// The bracket, as the route brackets its own shallow runs
 		// (route.CoverRuns): to the nearest usable stations either side
-		// whose fits show the line in line with the run's end lines with
-		// enough cover, or show none, which bounds the stretch but says
-		// nothing of the line's cover there (the message tells which). A
-		// repeat of an end station at its chainage that does not show the
-		// line bounds nothing. Before fix-fx21g the range was the
-		// station's alone while the route's own findings gave the
-		// bracket, two meanings for one kind (found in review). None with
-		// one station.
+		// whose fits show a line near the run's lines by the tracks' gate
+		// (loneNear) with enough cover, or show none, which bounds the
+		// stretch but says nothing of the line's cover there (the message
+		// tells which); a station whose fit shows such a line shallow
+		// widens the stretch. A repeat of a run's station at its chainage
+		// that does not show the line bounds nothing. Before fix-fx21g the
+		// range was the station's alone while the route's own findings
+		// gave the bracket, two meanings for one kind; when fix-fx22c
+		// judged the bracket by the merge's test, a service turning 3
+		// degrees between two traverses was bounded by the other's fit
+		// as one "whose fits do not show the line", though it did (both
+		// found in review). None with one station.
 		if len(r.Stations) >= 2 {
-			br := route.BracketOf(run, stop, marks, "the line")
-			nf.Message += "; " + br.Reach()
-			nf.ChainageFrom, nf.ChainageTo = br.Range()
+			marks := nearMarks(members, stations)
+			for _, cr := range route.CoverRuns(marks) {
+				if !slices.Contains(cr.Members, stations[0]) {
+					continue
+				}
+				br := route.BracketOf(cr, stop, marks, "the line")
+				nf.Message += "; " + br.Reach()
+				nf.ChainageFrom, nf.ChainageTo = br.Range()
+				break
+			}
 		}
 		d.Findings = append(d.Findings, nf)
 		added = true
@@ -259,25 +281,53 @@ type loneLine struct {
 // (loneInLine).
 const loneInLineK = 3.0
 
+// The model-error floors of a lone line's sigmas for loneInLine: each
+// line's azimuth, offset and depth sigma is taken as at least its own
+// sigma and the floor added in quadrature. A straight line fitted at one
+// traverse to a service that turns or slopes between two traverses is
+// right there to its statistical sigma, but the service is not the one
+// straight line the two fits would need to agree: in review a 5 A
+// service 0.40 m down, turning 3 degrees at the route between T04 and
+// T05 10 m apart, was fitted at 41.02 +- 0.03 and 37.94 +- 0.05 degrees
+// (3.08 degrees apart, 50 sigma), and one sloping from 0.40 to 0.55 m
+// there at 0.400 +- 0.001 and 0.556 +- 0.002 m (0.156 m, 80 sigma), and
+// each gave two findings. With these floors a turn of up to 3 x sqrt 2 x
+// 1.5 = 6.4 degrees and a change of depth of up to 3 x sqrt 2 x 0.05 =
+// 0.21 m between two stations is one line, and two parallel services
+// 0.7 m apart across, or 0.4 m apart in depth, fitted to a few
+// centimetres, stay two (0.21 m: TestLoneInLineBySigmas).
+const (
+	loneAzFloor     = 1.5  // degrees
+	loneOffsetFloor = 0.05 // m
+	loneDepthFloor  = 0.05 // m
+)
+
 // loneInLine tells whether lone lines a and c, at two stations, are one
-// line seen at both, judged by the lines' own sigmas as well as the
-// tracks' gate. They must pass lineDistance each way (azimuths within
-// max(10 degrees, 3 sigma); each point, with the depths' difference,
-// within max(1 m, 1.5 times the shallower depth) of the other line,
-// widened by the distance along it times the azimuth sigma) and then
-// agree within loneInLineK of their combined sigmas: the azimuths by the
-// azimuth sigmas, each point's distance across the other line by the
+// line seen at both, to merge their shallow-cover findings (addLoneCover).
+// They must pass lineDistance each way (azimuths within max(10 degrees,
+// 3 sigma); each point, with the depths' difference, within max(1 m, 1.5
+// times the shallower depth) of the other line, widened by the distance
+// along it times the azimuth sigma) and then agree within loneInLineK of
+// their combined sigmas, each line's sigmas with the model-error floors
+// added (loneAzFloor, loneOffsetFloor, loneDepthFloor): the azimuths by
+// the azimuth sigmas; each point's distance across the other line by the
 // offset sigmas with the distance along the line times the azimuth
-// sigma, and the depths by the depth sigmas. The gate alone is a fixed
-// distance: two services 0.7 m apart at different depths, each fitted to
-// a few centimetres, are one line by it (TestLoneInLineBySigmas), and a
-// merged finding would hide one of them; and merging is the side to be strict on, as two
-// findings for one service only repeat a row. In trial variants of
-// TestLoneCoverMergesInLineRun's scenario (services at 25 to 45 degrees
-// to the route, 2 to 20 nT of noise) one service's lines at any two
-// traverses differed by at most about 2.4 sigma in any of the three.
-// Not in line when a line is not listed or a sigma is not a finite
-// number.
+// sigmas (statistical), beyond what the lines' own difference in azimuth
+// explains (a service turning by that angle between the two points moves
+// each point across the other's line by at most the distance along times
+// its sine); and the depths by the depth sigmas. The gate alone is a
+// fixed distance: two services 0.7 m apart at different depths, each
+// fitted to a few centimetres, are one line by it
+// (TestLoneInLineBySigmas), and a merged finding would hide one of them;
+// and merging is the side to be strict on, as two findings for one
+// service only repeat a row. Without the floors a service turning 3
+// degrees or sloping 0.15 m between two traverses was two services
+// (found in review: TestLoneCoverMergesTurnAndSlope). In trial variants
+// of TestLoneCoverMergesInLineRun's scenario (services at 25 to 45
+// degrees to the route, 2 to 20 nT of noise) one straight service's lines
+// at any two traverses differed by at most about 2.4 sigma in any of the
+// three, without the floors. Not in line when a line is not listed or a
+// sigma is not a finite number.
 func loneInLine(a, c *loneLine) bool {
 	if !a.listed || !c.listed {
 		return false
@@ -298,18 +348,35 @@ func loneInLine(a, c *loneLine) bool {
 	if !okA || !okC {
 		return false
 	}
-	sAz := math.Hypot(a.src.azSigma, c.src.azSigma) // degrees
-	if dAz := math.Acos(math.Min(1, math.Abs(ua[0]*uc[0]+ua[1]*uc[1]))) * 180 / math.Pi; dAz > loneInLineK*sAz {
+	floored := func(s, floor float64) float64 { return math.Hypot(s, floor) }
+	cos := math.Min(1, math.Abs(ua[0]*uc[0]+ua[1]*uc[1]))
+	if dAz := math.Acos(cos) * 180 / math.Pi; dAz > loneInLineK*math.Hypot(floored(a.src.azSigma, loneAzFloor), floored(c.src.azSigma, loneAzFloor)) {
 		return false
 	}
 	dx := [2]float64{c.src.linePoint[0] - a.src.linePoint[0], c.src.linePoint[1] - a.src.linePoint[1]}
 	across := math.Max(math.Abs(dx[0]*ua[1]-dx[1]*ua[0]), math.Abs(dx[0]*uc[1]-dx[1]*uc[0]))
 	along := math.Max(math.Abs(dx[0]*ua[0]+dx[1]*ua[1]), math.Abs(dx[0]*uc[0]+dx[1]*uc[1]))
-	sAcross := math.Hypot(math.Hypot(a.offsetSigma, c.offsetSigma), along*sAz*math.Pi/180)
-	if across > loneInLineK*sAcross {
+	turn := along * math.Sqrt(1-cos*cos) // along times the sine of the lines' angle
+	sAz := math.Hypot(a.src.azSigma, c.src.azSigma) * math.Pi / 180
+	sAcross := math.Hypot(math.Hypot(floored(a.offsetSigma, loneOffsetFloor), floored(c.offsetSigma, loneOffsetFloor)), along*sAz)
+	if across > turn+loneInLineK*sAcross {
 		return false
 	}
-	return math.Abs(c.src.lineDepth-a.src.lineDepth) <= loneInLineK*math.Hypot(a.depthSigma, c.depthSigma)
+	return math.Abs(c.src.lineDepth-a.src.lineDepth) <= loneInLineK*math.Hypot(floored(a.depthSigma, loneDepthFloor), floored(c.depthSigma, loneDepthFloor))
+}
+
+// loneNear tells whether lone line c lies near lone line a by the tracks'
+// gate (lineDistance from a), as lone lines were judged in line before
+// fix-fx22c: what brackets a run's shallow stretch and names the other
+// fits that show the line (addLoneCover). Looser than loneInLine, which
+// decides the merge: a fit that shows the line where it turns or slopes
+// does show it. Both lines must be listed.
+func loneNear(a, c *loneLine) bool {
+	if !a.listed || !c.listed {
+		return false
+	}
+	_, ok := lineDistance(&a.src, &c.src)
+	return ok
 }
 
 // crossPairNote names the go-and-return pair that line j of fit f belongs

@@ -69,13 +69,18 @@ func (c *command) flagSet(stderr io.Writer) *pflag.FlagSet {
 	return fs
 }
 
+// helpWidth is the width the flags' descriptions are wrapped to in the
+// help (pflag's FlagUsagesWrapped): unwrapped, locate's ran to 500
+// characters on one line (found in review).
+const helpWidth = 100
+
 func (c *command) printHelp(w io.Writer, fs *pflag.FlagSet) {
 	fmt.Fprintf(w, "usage: %s\n\n%s\n", strings.TrimSpace("undercurrent "+c.name+" "+c.usage), c.summary)
 	if c.long != "" {
 		fmt.Fprintf(w, "\n%s\n", strings.TrimRight(c.long, "\n"))
 	}
 	if fs.HasFlags() {
-		fmt.Fprintf(w, "\nFlags:\n%s", fs.FlagUsages())
+		fmt.Fprintf(w, "\nFlags:\n%s", fs.FlagUsagesWrapped(helpWidth))
 	}
 	switch c.name {
 	case "serve", "version":

@@ -445,6 +445,7 @@ func readSamples(ctx context.Context, path string, opts ...ingest.Option) (*inge
 	s.Warnings = ingest.Warnings(r) // the wrapper hides them from Collect
 	s.NaiveTime, s.TimeSaidUTC = ingest.TimeBasis(r)
 	s.InFrame, s.InFrameStated, _ = ingest.InputFrame(r)
+	s.Columns, s.Unread, _ = ingest.InputColumns(r)
 	s.Source = path
 	return s, nil
 }

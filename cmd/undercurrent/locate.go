@@ -376,7 +376,12 @@ Each survey log's median |B| is checked against the Earth's field (about
 the run warns that the field's unit is probably wrong (fine for a log with
 the Earth's field removed); impossibly far (below 1 pT or above 0.1 T, as
 an Earth field in tesla read as nT) it refuses, unless --unit gives the
-field's unit.
+field's unit. A DC log whose |B| is as steady as the Earth's field but
+whose median only a unit's factor brings into the band (uT, G, mT or pT
+read as nT) is refused too, unless --unit gives the field's unit; a log
+with the Earth's field removed is not steady, and an AC log is warned of.
+x and y that look like longitude and latitude in degrees are refused
+(map them with --column lon=NAME,lat=NAME).
 
 With --coil turns=N,area=A[,mu=M] (or --coil-response FILE, a measured
 response) the field columns hold the voltages of induction coils, one per
@@ -424,14 +429,18 @@ The estimates are not a verified locate: confirm before excavation by
 approved methods, treat every conductor as live; local codes and licensed
 practice prevail.
 
-In the examples, survey.csv, base.csv and cal.json are the logs and the
-calibration of the walk-through in README.md, out/demo/fenwick-lane.csv is
-the demo's log, and two.csv is written by "undercurrent simulate
-testdata/scenarios/two-conductors.toml -o two.csv"; your-coil-log.csv and
-your-coil-response.csv stand for your own coil log and response table,
-which no command here writes.
+In the examples, your-log.csv stands for your own log, here with columns
+Time, GPS_Lat, GPS_Lon (WGS84 degrees), MagX, MagY, MagZ (microtesla) and
+Line (the traverse's name), with the sensor carried 0.25 m above the
+ground (the first example); survey.csv, base.csv and cal.json are the logs
+and the calibration of the walk-through in README.md,
+out/demo/fenwick-lane.csv is the demo's log, and two.csv is written by
+"undercurrent simulate testdata/scenarios/two-conductors.toml -o two.csv";
+your-coil-log.csv and your-coil-response.csv stand for your own coil log
+and response table, which no command here writes.
 
 Examples:
+  undercurrent locate --column lat=GPS_Lat,lon=GPS_Lon,bx=MagX,by=MagY,bz=MagZ --unit bx=uT,by=uT,bz=uT --group-by Line --sensor-height 0.25 your-log.csv -o results
   undercurrent locate --group-by group survey.csv
   undercurrent locate --base base.csv --calibration cal.json --group-by group survey.csv -o results
   undercurrent locate --freq 50 --window 0.1 --group-by group --sensor-height 0.3 --min-cover 0.6 --cover-code "UK 11 kV practice" out/demo/fenwick-lane.csv -o results
@@ -672,6 +681,10 @@ type survey struct {
 	// warning, the warning and its groups' directions of travel, so that
 	// the warning can be reworded once the fit is known (alongGroups).
 	groupLines []groupLines
+	// unread holds, for each log read without a group column, its
+	// columns that fed nothing, where the span warning looks for the one
+	// --group-by should have named (groupColumnHint).
+	unread []unreadColumns
 	// geodetic says which logs have latitude and longitude columns (the
 	// logs --origin places), and originFrom is the log whose origin the
 	// document's frame took.
@@ -884,12 +897,19 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 	// The logs are read and checked first, then corrected and grouped.
 	read := make([]*ingest.Samples, 0, len(logs))
 	clipped := make([]bool, len(logs)) // an AC log with clipped readings left out
+	var deg degreesSpan                // the extent of the logs' x, y in local metres
 	for k, path := range logs {
 		// A coil log's voltages are not checked against the Earth's field.
 		s, rows, warns, err := o.read.readLogRows(ctx, path, opts, !o.coil.on())
 		sv.warnings = append(sv.warnings, warns...)
 		if err != nil {
 			return nil, err
+		}
+		// A DC log in uT read as nT (unitslip.go).
+		if !o.coil.on() && !sv.ac && !o.read.fieldUnitGiven() {
+			if err := surveyLogUnit(path, s); err != nil {
+				return nil, err
+			}
 		}
 		if w := ingest.OneTime(s.Time); w != "" && !sv.ac {
 			// A time column rounded to one value (an AC log is refused
@@ -950,7 +970,11 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			sv.alerts = append(sv.alerts, w)
 		}
 		if o.groupBy != "" && s.Group == nil {
-			return nil, fmt.Errorf("%s has no column %q to group by (see \"undercurrent inspect %s\" for its columns)", path, o.groupBy, path)
+			return nil, noGroupColumnError(path, o.groupBy, s)
+		}
+		if s.Group == nil && len(s.Unread) > 0 {
+			// For the span warning's hint (groupColumnHint).
+			sv.unread = append(sv.unread, unreadColumns{path, s.Unread})
 		}
 		// Rows out of time order within a group (--time-order any) are
 		// put in order (input.go sortGroupRows).
@@ -992,7 +1016,25 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 				sv.alerts = append(sv.alerts, w)
 			}
 		}
+		if !sv.geodetic[path] {
+			deg.add(path, s)
+		}
 		read = append(read, s)
+	}
+	// Longitude and latitude mapped to x and y (posunits.go).
+	if err := deg.check(opts, o.read.positionUnitGiven()); err != nil {
+		return nil, err
+	}
+	// The logs' origins are checked before their groups are matched
+	// across logs: a group's readings in two logs placed about two
+	// origins lie apart by the origins' distance, and before, a false
+	// "group T10 ... 180 m apart" warning came ahead of the refusal.
+	for _, s := range read {
+		if w, err := sv.sameOrigin(o, s); err != nil {
+			return nil, err
+		} else if w != "" {
+			sv.warnings = append(sv.warnings, w)
+		}
 	}
 	if o.groupBy != "" {
 		// A traverse walked again under its own name in one log, after a
@@ -1014,11 +1056,6 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 	for k, path := range logs {
 		s := read[k]
 		read[k] = nil // the groups hold the readings from here on
-		if w, err := sv.sameOrigin(o, s); err != nil {
-			return nil, err
-		} else if w != "" {
-			sv.warnings = append(sv.warnings, w)
-		}
 		if doc.Site == "" {
 			doc.Site = s.Meta["site"]
 		}
@@ -1381,37 +1418,12 @@ func checkBaseUnits(ctx context.Context, o *locateOptions, base *ingest.Samples,
 	if given || base.Meta["elements"] != "" {
 		return w, nil
 	}
-	var mags []float64
-	step := max(1, base.Len()/(1<<20))
-	for i := 0; i < base.Len(); i += step {
-		if m := math.Sqrt(base.Bx[i]*base.Bx[i] + base.By[i]*base.By[i] + base.Bz[i]*base.Bz[i]); !math.IsNaN(m) && !math.IsInf(m, 0) {
-			mags = append(mags, m)
-		}
-	}
-	if len(mags) < 2 {
+	m, rel, unit, factor, ok := steadyEarthUnit(base.Bx, base.By, base.Bz)
+	if !ok {
 		return w, nil
 	}
-	sort.Float64s(mags)
-	n := len(mags)
-	m := mags[n/2]
-	spread := mags[n*9/10] - mags[n/10]
-	if m >= earthMinNT && m <= earthMaxNT || !(spread <= 0.05*m) {
-		return w, nil
-	}
-	for _, u := range []struct {
-		name   string
-		factor float64 // nT per unit
-	}{{"T", 1e9}, {"mT", 1e6}, {"G", 1e5}, {"uT", 1e3}, {"mG", 1e2}, {"pT", 1e-3}} {
-		if f := m * u.factor; f >= earthMinNT && f <= earthMaxNT {
-			how := fmt.Sprintf("%g times too small", u.factor)
-			if u.factor < 1 {
-				how = fmt.Sprintf("%g times too large", 1/u.factor)
-			}
-			return "", fmt.Errorf("%s: the base log's median |B| is %.4g nT, outside %s, yet as steady as a record of the Earth's field (90%% of readings within %.2g%% of each other): its field columns are probably in %s, and read as nT they would make the base correction %s. Refused: give their unit with --base-unit bx=%s,by=%s,bz=%s (or --base-unit bx=nT,by=nT,bz=nT if nT is right)",
-				o.base, m, earthBand, 100*spread/m, u.name, how, u.name, u.name, u.name)
-		}
-	}
-	return w, nil
+	return "", fmt.Errorf("%s: the base log's median |B| is %.4g nT, outside %s, yet as steady as a record of the Earth's field (90%% of readings within %.2g%% of each other): its field columns are probably in %s, and read as nT they would make the base correction %s. Refused: give their unit with --base-unit bx=%s,by=%s,bz=%s (or --base-unit bx=nT,by=nT,bz=nT if nT is right)",
+		o.base, m, earthBand, 100*rel, unit, unitFactorWords(factor), unit, unit, unit)
 }
 
 // despikeBase looks for spikes in the base log, in time order, and leaves
@@ -2264,7 +2276,7 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 	}
 	if o.groupBy == "" && !sv.groupWarned {
 		if w := spanWarning(sv); w != "" {
-			alerts = append(alerts, w)
+			alerts = append(alerts, w+groupColumnHint(o, sv))
 		}
 	}
 	if w := splitGroupsWarning(sv); w != "" {

@@ -111,3 +111,55 @@ func checkPositionSpeed(path string, s *ingest.Samples, unitGiven bool) string {
 	return fmt.Sprintf("%s: the positions move at a median %.4g m/s between readings a second or more apart (by the time column, in seconds), faster than any walked, towed or driven survey (up to %g m/s): positions are read in metres unless a unit is stated, and every depth, offset and chainage (and the currents with them) scales with that unit. In millimetres the speed would be %.3g m/s, in centimetres %.3g m/s: if x, y and z are in mm or cm, give it with --unit x=mm,y=mm,z=mm (or cm)",
 		path, v, maxSurveySpeed, v/1000, v/100)
 }
+
+// degreesSpan gathers the extent of the x, y of a survey's logs read as
+// local metres (not from latitude and longitude columns), to tell
+// longitude and latitude in degrees mapped to x and y.
+type degreesSpan struct {
+	first                  string // the first log looked at
+	xmin, xmax, ymin, ymax float64
+	n                      int
+}
+
+// add takes in the positions of log path.
+func (d *degreesSpan) add(path string, s *ingest.Samples) {
+	for i := range s.X {
+		x, y := s.X[i], s.Y[i]
+		if math.IsNaN(x) || math.IsNaN(y) {
+			continue
+		}
+		if d.n == 0 {
+			d.first, d.xmin, d.xmax, d.ymin, d.ymax = path, x, x, y, y
+		}
+		d.xmin, d.xmax = min(d.xmin, x), max(d.xmax, x)
+		d.ymin, d.ymax = min(d.ymin, y), max(d.ymax, y)
+		d.n++
+	}
+}
+
+// check refuses a survey whose x, y look like longitude and latitude in
+// degrees read as metres (ingest.DegreesLike, the test "undercurrent
+// inspect" warns with): the whole survey inside 5 cm, fitted to a
+// go-and-return pair of 737 million amperes in review, where inspect
+// warned and locate said nothing. --unit for a position (unitGiven)
+// says the positions are metres and lets them through. opts are the
+// input options, to name the columns read as x and y.
+func (d *degreesSpan) check(opts []ingest.Option, unitGiven bool) error {
+	if d.n == 0 || unitGiven || !ingest.DegreesLike(d.xmin, d.xmax, d.ymin, d.ymax) {
+		return nil
+	}
+	xs, ys := "NAME", "NAME"
+	if r, err := ingest.Open(d.first, append(append([]ingest.Option(nil), opts...), ingest.WithOrigin(ingest.Geodetic{}))...); err == nil {
+		for _, m := range ingest.Mappings(r) {
+			switch m.Column {
+			case ingest.ColX:
+				xs = m.Source
+			case ingest.ColY:
+				ys = m.Source
+			}
+		}
+		r.Release()
+	}
+	return fmt.Errorf("%s: x and y (columns %s and %s) span %.3g by %.3g and look like longitude and latitude in degrees, read as metres: the whole survey would lie within 5 cm and every current fitted would be millions of times off. Refused: map them as longitude and latitude, --column lon=%s,lat=%s in place of x=%s,y=%s; if they really are metres, give their unit with --unit x=m,y=m",
+		d.first, xs, ys, d.xmax-d.xmin, d.ymax-d.ymin, xs, ys, xs, ys)
+}

@@ -301,3 +301,85 @@ func alertsFirst(warnings, alerts []string) []string {
 	}
 	return leadWarnings(lead, rest)
 }
+
+// unreadColumns are a log's columns that fed nothing (ingest.Samples.Unread).
+type unreadColumns struct {
+	path  string
+	names []string
+}
+
+// maxGroupCandidates is how many unread columns of a log groupColumnHint
+// reads again to look at their values: each is a read of the whole log,
+// made only on the span warning's path.
+const maxGroupCandidates = 4
+
+// groupColumnHint returns, for the span warning (a run without --group-by
+// whose readings run along the fitted line), the text that names the
+// column --group-by should have given: a column of the logs that fed
+// nothing and whose values come in blocks, as the names of traverses
+// walked one after another do (looksLikeGroups); "" when none does. The
+// warning's "give the column that tells them apart with --group-by" left a
+// user whose traverses were named in a column "Line" to find it (found in
+// review).
+func groupColumnHint(o *locateOptions, sv *survey) string {
+	opts := append(append([]ingest.Option(nil), o.readOpts...), o.coil.readOptions()...)
+	for _, u := range sv.unread {
+		tried := 0
+		for _, name := range u.names {
+			if tried == maxGroupCandidates {
+				break
+			}
+			if strings.ContainsAny(name, ",=") || strings.TrimSpace(name) == "" {
+				continue // not expressible as a mapping
+			}
+			tried++
+			s, err := ingest.ReadSamples(u.path, append(opts[:len(opts):len(opts)], ingest.WithColumns(ingest.ColGroup+"="+name))...)
+			if err != nil || !looksLikeGroups(s.Group) {
+				continue
+			}
+			arg := name
+			if strings.ContainsAny(name, " \t\"'") {
+				arg = "\"" + name + "\""
+			}
+			return fmt.Sprintf(" (the column %q of %s, not read, holds values in blocks as the names of traverses walked one after another do: try --group-by %s)", name, u.path, arg)
+		}
+	}
+	return ""
+}
+
+// looksLikeGroups reports whether a column's values look like the names
+// of traverses or sensors logged one after another: at least two values,
+// at least 10 readings a value on average, and each value in one block or
+// two (the runs at most twice the values), not a value that changes from
+// reading to reading or flickers (a GPS fix quality).
+func looksLikeGroups(g []string) bool {
+	if len(g) == 0 {
+		return false
+	}
+	seen := map[string]bool{}
+	runs := 0
+	for i, v := range g {
+		if v == "" {
+			return false
+		}
+		seen[v] = true
+		if i == 0 || v != g[i-1] {
+			runs++
+		}
+	}
+	return len(seen) >= 2 && len(seen)*10 <= len(g) && runs <= 2*len(seen)
+}
+
+// noGroupColumnError is locate's error for --group-by NAME when the log
+// has no column NAME: it lists the log's columns, as the error for a
+// missing field column does, so that the right name can be given at once.
+func noGroupColumnError(path, name string, s *ingest.Samples) error {
+	if len(s.Columns) == 0 {
+		return fmt.Errorf("%s has no column %q to group by (see \"undercurrent inspect %s\" for its columns)", path, name, path)
+	}
+	msg := fmt.Sprintf("%s has no column %q to group by (columns found: %s", path, name, strings.Join(s.Columns, ", "))
+	if len(s.Unread) > 0 {
+		msg += fmt.Sprintf("; not read for anything else: %s", strings.Join(s.Unread, ", "))
+	}
+	return fmt.Errorf("%s); give the one that names the traverses, sensors or time windows with --group-by NAME", msg)
+}

@@ -2,6 +2,8 @@ package main
 
 import (
 	"fmt"
+	"math"
+	"sort"
 	"strings"
 
 	"undercurrent/calibrate"
@@ -117,4 +119,80 @@ func earthLogUnit(path string, s *ingest.Samples) error {
 		}
 	}
 	return nil
+}
+
+// steadyFactor is how steady |B| must be to be taken for a record of the
+// Earth's field: the 10th to 90th percentile within 5% of the median. The
+// largest storms of the space age moved the field by about 600 nT, near
+// 1% (Dst -589 nT on 14 March 1989, World Data Center for Geomagnetism,
+// Kyoto); a survey's sensor offsets turning with its heading and the
+// conductors' own anomalies add some hundreds of nT more. A log with the
+// Earth's field removed (by the logger, or a baseline taken off) holds
+// the conductors' field and noise, whose size changes by far more than
+// that from one reading to the next.
+const steadyFactor = 0.05
+
+// steadyEarthUnit looks at the |B| of a log read as nT: when its median
+// lies outside the Earth's band, one field unit's factor brings it inside
+// and |B| is as steady as a record of the Earth's field (steadyFactor), it
+// returns the median, the 10th-90th percentile spread relative to it, and
+// that unit with its factor (nT per unit). ok is false otherwise.
+func steadyEarthUnit(bx, by, bz []float64) (m, rel float64, unit string, factor float64, ok bool) {
+	var mags []float64
+	step := max(1, len(bx)/(1<<20))
+	for i := 0; i < len(bx); i += step {
+		if v := math.Sqrt(bx[i]*bx[i] + by[i]*by[i] + bz[i]*bz[i]); !math.IsNaN(v) && !math.IsInf(v, 0) {
+			mags = append(mags, v)
+		}
+	}
+	if len(mags) < 2 {
+		return 0, 0, "", 0, false
+	}
+	sort.Float64s(mags)
+	n := len(mags)
+	m = mags[n/2]
+	spread := mags[n*9/10] - mags[n/10]
+	if m >= earthMinNT && m <= earthMaxNT || !(m > 0) || !(spread <= steadyFactor*m) {
+		return 0, 0, "", 0, false
+	}
+	for _, u := range []struct {
+		name   string
+		factor float64 // nT per unit
+	}{{"T", 1e9}, {"mT", 1e6}, {"G", 1e5}, {"uT", 1e3}, {"mG", 1e2}, {"pT", 1e-3}} {
+		if f := m * u.factor; f >= earthMinNT && f <= earthMaxNT {
+			return m, spread / m, u.name, u.factor, true
+		}
+	}
+	return 0, 0, "", 0, false
+}
+
+// unitFactorWords words how far off a value read in nT is when its
+// unit's factor (nT per unit) is factor: "1000 times too small".
+func unitFactorWords(factor float64) string {
+	if factor < 1 {
+		return fmt.Sprintf("%g times too large", 1/factor)
+	}
+	return fmt.Sprintf("%g times too small", factor)
+}
+
+// surveyLogUnit refuses a DC survey log read without --unit whose |B| is
+// as steady as a record of the Earth's field while its median lies
+// outside the Earth's band, where one field unit's factor would bring it
+// (steadyEarthUnit): a log in uT read as nT. Before, such a log ran to
+// "21 sound" at 0.0017818 A for a 1.80 A cable, with only a warning after
+// the results (found in review), while the same log with --base, and
+// calibrate, refused it. A log with the Earth's field removed is not
+// steady and is let through with the band warning; an AC log (whose
+// sensors may leave the static field out) and an IAGA-2002 file (in nT by
+// its format) are not looked at here.
+func surveyLogUnit(path string, s *ingest.Samples) error {
+	if s.Meta["elements"] != "" {
+		return nil
+	}
+	m, rel, unit, factor, ok := steadyEarthUnit(s.Bx, s.By, s.Bz)
+	if !ok {
+		return nil
+	}
+	return fmt.Errorf("%s: median |B| is %.4g nT as read, outside %s, yet as steady as a record of the Earth's field (90%% of readings within %.2g%% of each other): its field columns are probably in %s, and read as nT every current fitted would come out %s. Refused: give their unit with --unit bx=%s,by=%s,bz=%s (or --unit bx=nT,by=nT,bz=nT if nT is right)",
+		path, m, earthBand, 100*rel, unit, unitFactorWords(factor), unit, unit, unit)
 }

@@ -161,7 +161,13 @@
 // is no walking speed), at times start + k / rate for
 // 0 <= k < duration_s * rate, so that a whole number of seconds fills
 // whole windows of the pipeline. A sensor's height is the up coordinate of
-// its position, so sensor.height_m is not given. The [[survey.sensor]]
+// its position, so sensor.height_m is not given. Fixed sensors may stand
+// below, level with or above the conductors (wall and tray sensors around
+// busbars in a plant room); a conductor is refused only where it passes
+// through or within 1 cm of a sensor (a line, a polyline segment or a
+// dipole: the field is singular there), the error naming both. The
+// conductors of walked surveys and spins must lie below the sensor's
+// height. The [[survey.sensor]]
 // tables take the same keys as an asset's [[asset.sensor]] tables in the
 // serve command's site file (less calibration), so sensors can be copied
 // from one to the other; the repository's

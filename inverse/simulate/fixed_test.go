@@ -247,7 +247,7 @@ func TestFixedErrors(t *testing.T) {
 		{"spacing", "duration_s = 1", "duration_s = 1\nsample_spacing_m = 0.1", "not both"},
 		{"duration", "duration_s = 1", "duration_s = -1", "s.toml:10:14: duration -1 s"},
 		{"sensors without the pattern", `pattern = "fixed"`, `pattern = "spin"`, `s.toml:11:1: [[survey.sensor]] tables are for pattern = "fixed"`},
-		{"above the lowest sensor", "point = [0.15, 0.0, -0.8]", "point = [0.15, 0.0, 0.4]", "not below the sensor height 0.3 m"},
+		{"through a sensor", "point = [0.15, 0.0, -0.8]", "point = [0.0, 0.0, 0.3]", `s.toml:33:9: conductor 2 ("return"): the line passes 0 m from fixed sensor 2 ("fl-n1"`},
 		{"change without current", "current_after_a = -180", "", `s.toml:38:15: conductor 2 ("return"): change_at_s needs current_after_a`},
 		{"current without change", "change_at_s = 0.5", "", `conductor 2 ("return"): current_after_a needs change_at_s`},
 		{"change before the start", "change_at_s = 0.5", "change_at_s = -2", "change time -2 s must be a number >= 0"},

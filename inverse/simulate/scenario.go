@@ -44,7 +44,8 @@ type Scenario struct {
 	Survey Survey `toml:"survey"`
 	// Base, when present, describes a base station (see SimulateBase).
 	Base *Base `toml:"base"`
-	// Conductors are the buried sources.
+	// Conductors are the sources: buried below a walked survey, anywhere
+	// clear of the sensors of pattern "fixed".
 	Conductors []Conductor `toml:"conductor"`
 
 	// Source is the file the scenario came from, for messages; set by Load
@@ -324,7 +325,8 @@ func (sc *Scenario) Validate() error {
 	if len(sc.Conductors) == 0 && walked {
 		return fmt.Errorf("simulate: %s: no [[conductor]] tables: a scenario needs at least one source", sc.Source)
 	}
-	// Fixed sensors are checked first: the conductors must lie below them.
+	// Fixed sensors are checked first: the conductors must keep clear of
+	// them.
 	if sc.Survey.Pattern == "fixed" {
 		if _, err := sc.fixedLines(); err != nil {
 			return err
@@ -459,8 +461,16 @@ func (sc *Scenario) validateConductor(i int) error {
 	default:
 		return bad("kind", "unknown kind %q: want \"line\", \"polyline\" or \"dipole\"", c.Kind)
 	}
-	// A reading on a conductor is singular; keep the sources below the
-	// sensors.
+	// A reading on a conductor is singular. Fixed sensors stand where they
+	// are mounted, beside, below or above the conductors (wall and tray
+	// sensors around busbars): only a source through or next to one of
+	// them is refused. Walked surveys keep the sources below the sensor.
+	if sc.Survey.Pattern == "fixed" {
+		if err := sc.fixedClearance(i); err != nil {
+			return err
+		}
+		return sc.validateChange(i)
+	}
 	top := math.Inf(-1)
 	switch c.Kind {
 	case "line":
@@ -476,7 +486,7 @@ func (sc *Scenario) validateConductor(i int) error {
 	case "dipole":
 		top = c.Position[2]
 	}
-	if low := sc.lowestSensor(); top >= low {
+	if low := sc.Sensor.Height; top >= low {
 		return bad("kind", "the source reaches up to %g m, not below the sensor height %g m (buried sources have up < 0)", top, low)
 	}
 	return sc.validateChange(i)

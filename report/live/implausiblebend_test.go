@@ -9,13 +9,9 @@ import (
 // bendSiteText is a plant room's DC bar (invented fixture, after rv22a's
 // dc-segs4 and dc-lines): it rises, runs 2 m north, turns east for
 // 1.5 m and drops again, under six sensors. "bend-truth" holds it as its
-// four segments, "bend-lines" as two infinite lines along the runs.
-const bendSiteText = `
-[[asset]]
-name = "bend-truth"
-window = "4s"
-noise = 1.0
-  [[asset.sensor]]
+// four segments, "bend-lines" as two infinite lines along the runs;
+// bendSensorsText are the six sensors both assets share.
+const bendSensorsText = `  [[asset.sensor]]
   name = "s1"
   position = [-0.4, -0.8, -0.4]
   [[asset.sensor]]
@@ -33,7 +29,14 @@ noise = 1.0
   [[asset.sensor]]
   name = "s6"
   position = [2.0, 0.9, -0.6]
-  [[asset.conductor]]
+`
+
+const bendSiteText = `
+[[asset]]
+name = "bend-truth"
+window = "4s"
+noise = 1.0
+` + bendSensorsText + `  [[asset.conductor]]
   name = "riser1"
   kind = "segment"
   from = [0.0, -1.5, -2.5]
@@ -57,25 +60,7 @@ noise = 1.0
 name = "bend-lines"
 window = "4s"
 noise = 1.0
-  [[asset.sensor]]
-  name = "s1"
-  position = [-0.4, -0.8, -0.4]
-  [[asset.sensor]]
-  name = "s2"
-  position = [0.4, -0.6, -0.5]
-  [[asset.sensor]]
-  name = "s3"
-  position = [-0.3, 0.9, -0.45]
-  [[asset.sensor]]
-  name = "s4"
-  position = [0.8, 1.0, -0.4]
-  [[asset.sensor]]
-  name = "s5"
-  position = [0.9, 0.0, -0.5]
-  [[asset.sensor]]
-  name = "s6"
-  position = [2.0, 0.9, -0.6]
-  [[asset.conductor]]
+` + bendSensorsText + `  [[asset.conductor]]
   name = "north"
   point = [0.0, -0.5, -0.8]
   direction = [0.0, 1.0, 0.0]
