@@ -59,6 +59,20 @@ type driftGroup struct {
 	noise      float64 // the readings' noise, nT
 }
 
+// detrended returns the group's DC problem p and a copy q whose fields have
+// a drift at rate (nT/s per axis) about the group's mean time taken out.
+func (d driftGroup) detrended(sv *survey, o *locateOptions, rate [3]float64) (p, q *inverse.Problem) {
+	p = d.g.problem(false, sv.groupNoise(d.g, o.noise))
+	c := *p
+	c.Fields = make([][3]float64, len(p.Fields))
+	for i, f := range p.Fields {
+		for a := range 3 {
+			c.Fields[i][a] = f[a] - rate[a]*(d.g.stamps[i]-d.mean)
+		}
+	}
+	return p, &c
+}
+
 // driftWarning returns the warning above, or "" (a base log given, an AC
 // survey, no times, too few groups or no drift).
 func driftWarning(o *locateOptions, sv *survey) string {
@@ -126,15 +140,8 @@ func driftWarning(o *locateOptions, sv *survey) string {
 	set := o.fitSettings()
 	var gain, shift float64
 	for _, d := range gs {
-		p := d.g.problem(false, sv.groupNoise(d.g, o.noise))
-		q := *p
-		q.Fields = make([][3]float64, len(p.Fields))
-		for i, f := range p.Fields {
-			for a := range 3 {
-				q.Fields[i][a] = f[a] - rate[a]*(d.g.stamps[i]-d.mean)
-			}
-		}
-		r, err := inverse.FitLines(&q, set)
+		p, q := d.detrended(sv, o, rate)
+		r, err := inverse.FitLines(q, set)
 		if err != nil {
 			return ""
 		}

@@ -155,15 +155,8 @@ func curvedDriftWarning(o *locateOptions, sv *survey) string {
 		j, k := max(i-1, 0), min(i+1, n-1)
 		rate := localRate(gs[j : k+1])
 		rates = append(rates, math.Sqrt(rate[0]*rate[0]+rate[1]*rate[1]+rate[2]*rate[2]))
-		p := d.g.problem(false, sv.groupNoise(d.g, o.noise))
-		q := *p
-		q.Fields = make([][3]float64, len(p.Fields))
-		for r, f := range p.Fields {
-			for a := range 3 {
-				q.Fields[r][a] = f[a] - rate[a]*(d.g.stamps[r]-d.mean)
-			}
-		}
-		r, err := inverse.FitLines(&q, set)
+		_, q := d.detrended(sv, o, rate)
+		r, err := inverse.FitLines(q, set)
 		if err != nil {
 			continue
 		}
