@@ -908,6 +908,10 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		// A DC log in uT read as nT (unitslip.go).
 		if !o.coil.on() && !sv.ac && !o.read.fieldUnitGiven() {
 			if err := surveyLogUnit(path, s); err != nil {
+				// The refusal says what the band warning said, and more.
+				sv.warnings = slices.DeleteFunc(sv.warnings, func(w string) bool {
+					return strings.HasPrefix(w, path+": median |B| is ") && strings.Contains(w, earthBand)
+				})
 				return nil, err
 			}
 		}

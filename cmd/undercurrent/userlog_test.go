@@ -85,6 +85,10 @@ func TestLocateSurveyMicrotesla(t *testing.T) {
 		if code != 1 || !strings.Contains(stderr, "probably in "+u.unit) || !strings.Contains(stderr, "Refused: give their unit with "+flag) {
 			t.Errorf("%s log: exit %d, stderr:\n%s\nwant it refused, naming %s", u.unit, code, stderr, flag)
 		}
+		// The refusal says what the band warning says: not both.
+		if strings.Contains(stderr, "warning: "+path+": median |B|") {
+			t.Errorf("%s log: stderr repeats the refusal as a band warning:\n%s", u.unit, stderr)
+		}
 		got := baseLocateDoc(t, "--unit", strings.TrimPrefix(flag, "--unit "), path)
 		sameCurrents(t, u.unit+" with --unit", got, want, 1e-3)
 	}
