@@ -53,6 +53,22 @@ func loneShallow(d *Document) []*Finding {
 	return out
 }
 
+// loneShallowNaming returns d's lone shallow-cover findings after checking
+// that they name the groups want, in order, one list a finding.
+func loneShallowNaming(t *testing.T, d *Document, want [][]string) []*Finding {
+	t.Helper()
+	lone := loneShallow(d)
+	var got [][]string
+	for _, f := range lone {
+		got = append(got, f.Groups)
+		t.Log(f.Message)
+	}
+	if fmt.Sprint(got) != fmt.Sprint(want) {
+		t.Fatalf("lone shallow-cover findings name %v, want %v", got, want)
+	}
+	return lone
+}
+
 // loneSources returns, by group key, the further line sources of d's
 // groups that no conductor's track follows.
 func loneSources(d *Document) map[string][]Source {
@@ -261,15 +277,7 @@ func TestLoneCoverKeepsRunsApart(t *testing.T) {
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			d := simulatedDocWith(t, serviceScenario(t, tc.svcs...), &BuildSettings{MinCover: 0.9, TrackMinStations: tc.trackMin})
-			lone := loneShallow(d)
-			var got [][]string
-			for _, f := range lone {
-				got = append(got, f.Groups)
-				t.Log(f.Message)
-			}
-			if fmt.Sprint(got) != fmt.Sprint(tc.groups) {
-				t.Fatalf("lone shallow-cover findings name %v, want %v", got, tc.groups)
-			}
+			lone := loneShallowNaming(t, d, tc.groups)
 			// Each finding is one service's: its azimuth within three sigma
 			// of that service's, each once.
 			seen := make([]bool, len(tc.azimuths))
