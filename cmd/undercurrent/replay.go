@@ -93,7 +93,12 @@ give a shorter --batch.
 
 Examples (recorded.arrows is written by "undercurrent simulate
 testdata/scenarios/harrow-fen-fixed.toml -o recorded.arrows", as in
-README.md):
+README.md; each needs "undercurrent serve --config
+testdata/site/harrow-fen.toml" running, and each is a replay of its own
+on a fresh store: the second sends one sensor's readings alone, so after
+the first on the same store the pipeline would hold or refuse them as out
+of step with the other sensors; add --resume to send only what a replay
+cut short left):
   undercurrent replay recorded.arrows --asset fenwick-lane --speed 1 --user pipeline --password change-me-pipeline
   undercurrent replay recorded.arrows --asset fenwick-lane --sensor fl-w1 --speed 0 --format arrow --user pipeline --password change-me-pipeline
   undercurrent replay recorded.arrows --asset fenwick-lane --now --broker nats://127.0.0.1:4222 --user pipeline --password change-me-pipeline`,
