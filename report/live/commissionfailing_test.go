@@ -1,7 +1,6 @@
 package live
 
 import (
-	"context"
 	"strings"
 	"sync/atomic"
 	"testing"
@@ -22,22 +21,9 @@ func TestCommissionFailingShownAndAlarmedEarly(t *testing.T) {
 	}
 	h := newHarness(t)
 	var calls atomic.Int64
-	svc, err := New(Config{Site: testSite(t, stopSiteText), Conn: h.nc, Worker: "wk", NewEstimator: newMean, Commissioner: misfitCommissioner{&calls}})
-	if err != nil {
-		t.Fatal(err)
-	}
-	ctx, cancel := context.WithCancel(context.Background())
-	defer cancel()
-	done := make(chan error, 1)
-	go func() { done <- svc.Run(ctx) }()
-	<-svc.Ready()
-	info := func() AssetInfo {
-		ai, err := svc.assetInfo(context.Background(), svc.site.Asset("fenwick-lane"))
-		if err != nil {
-			t.Fatal(err)
-		}
-		return ai
-	}
+	svc, stop := runStopSite(t, h, misfitCommissioner{&calls})
+	defer stop()
+	info := func() AssetInfo { return fenwickInfo(t, svc) }
 	// One second, two windows: the first try.
 	h.publish(0, 1)
 	waitFor(t, 30*time.Second, "the first try", func() bool { return calls.Load() >= 1 })
@@ -61,8 +47,5 @@ func TestCommissionFailingShownAndAlarmedEarly(t *testing.T) {
 	if ai := info(); ai.Stopped != "" {
 		t.Errorf("stopped %q after 7 tries, want still trying", ai.Stopped)
 	}
-	cancel()
-	if err := <-done; err != nil {
-		t.Errorf("Run: %v", err)
-	}
+	stop()
 }

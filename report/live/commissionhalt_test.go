@@ -4,6 +4,7 @@ import (
 	"context"
 	"errors"
 	"strings"
+	"sync"
 	"sync/atomic"
 	"testing"
 	"time"
@@ -56,15 +57,8 @@ func TestCommissionRefusalStopsOnce(t *testing.T) {
 	}
 	h := newHarness(t)
 	var calls atomic.Int32
-	svc, err := New(Config{Site: testSite(t, stopSiteText), Conn: h.nc, Worker: "wk", NewEstimator: newMean, Commissioner: refusingCommissioner{&calls}})
-	if err != nil {
-		t.Fatal(err)
-	}
-	ctx, cancel := context.WithCancel(context.Background())
-	defer cancel()
-	done := make(chan error, 1)
-	go func() { done <- svc.Run(ctx) }()
-	<-svc.Ready()
+	svc, stop := runStopSite(t, h, refusingCommissioner{&calls})
+	defer stop()
 	h.publish(0, 3)
 	waitFor(t, 30*time.Second, "commissioning", func() bool { return calls.Load() > 0 })
 
@@ -83,15 +77,43 @@ func TestCommissionRefusalStopsOnce(t *testing.T) {
 	if n := calls.Load(); n != 1 {
 		t.Errorf("commissioned %d times, want once", n)
 	}
+	ai := fenwickInfo(t, svc)
+	if !strings.Contains(ai.Stopped, "its point") || ai.Worker != "wk" {
+		t.Errorf("asset endpoint: stopped %q, worker %q; want the refusal, held by wk", ai.Stopped, ai.Worker)
+	}
+	stop()
+}
+
+// runStopSite runs the service on stopSiteText's site with commissioner c,
+// ready; stop cancels it and reports an error from Run (calling it again
+// does nothing).
+func runStopSite(t *testing.T, h *harness, c Commissioner) (svc *Service, stop func()) {
+	t.Helper()
+	svc, err := New(Config{Site: testSite(t, stopSiteText), Conn: h.nc, Worker: "wk", NewEstimator: newMean, Commissioner: c})
+	if err != nil {
+		t.Fatal(err)
+	}
+	ctx, cancel := context.WithCancel(context.Background())
+	done := make(chan error, 1)
+	go func() { done <- svc.Run(ctx) }()
+	<-svc.Ready()
+	var once sync.Once
+	return svc, func() {
+		once.Do(func() {
+			cancel()
+			if err := <-done; err != nil {
+				t.Errorf("Run: %v", err)
+			}
+		})
+	}
+}
+
+// fenwickInfo returns the fenwick-lane asset's endpoint document.
+func fenwickInfo(t *testing.T, svc *Service) AssetInfo {
+	t.Helper()
 	ai, err := svc.assetInfo(context.Background(), svc.site.Asset("fenwick-lane"))
 	if err != nil {
 		t.Fatal(err)
 	}
-	if !strings.Contains(ai.Stopped, "its point") || ai.Worker != "wk" {
-		t.Errorf("asset endpoint: stopped %q, worker %q; want the refusal, held by wk", ai.Stopped, ai.Worker)
-	}
-	cancel()
-	if err := <-done; err != nil {
-		t.Errorf("Run: %v", err)
-	}
+	return ai
 }
