@@ -16,16 +16,20 @@ type batcherRow struct {
 	t      float64
 }
 
-// feed gives rows to a Batcher of lag and returns the batches in the
-// order it gives them back, with the most it held at once.
-func feed(t *testing.T, rows []batcherRow, dur, lag float64) ([]*Batch, int) {
+// addRows adds rows to z in the order given by their indices (all of them
+// in turn when order is nil), then flushes it, and returns every batch it
+// gave back, in the order it gave them.
+func addRows(t *testing.T, z *Batcher, rows []batcherRow, order []int) []*Batch {
 	t.Helper()
-	z, err := NewBatcher("log.csv", "fenwick-lane", dur, lag, false)
-	if err != nil {
-		t.Fatal(err)
+	if order == nil {
+		order = make([]int, len(rows))
+		for i := range order {
+			order[i] = i
+		}
 	}
 	var out []*Batch
-	for i, r := range rows {
+	for _, i := range order {
+		r := rows[i]
 		if err := z.Add(i, r.sensor, r.t, r.t, 2*r.t, 3*r.t, 0); err != nil {
 			t.Fatal(err)
 		}
@@ -37,6 +41,18 @@ func feed(t *testing.T, rows []batcherRow, dur, lag float64) ([]*Batch, int) {
 	for b := z.Next(); b != nil; b = z.Next() {
 		out = append(out, b)
 	}
+	return out
+}
+
+// feed gives rows to a Batcher of lag and returns the batches in the
+// order it gives them back, with the most it held at once.
+func feed(t *testing.T, rows []batcherRow, dur, lag float64) ([]*Batch, int) {
+	t.Helper()
+	z, err := NewBatcher("log.csv", "fenwick-lane", dur, lag, false)
+	if err != nil {
+		t.Fatal(err)
+	}
+	out := addRows(t, z, rows, nil)
 	if z.Held() != 0 {
 		t.Fatalf("%d batches held after the last Next", z.Held())
 	}
@@ -223,20 +239,7 @@ func TestBatcherByRowMergedAsSplitSamples(t *testing.T) {
 			if byRow {
 				z.ByRow()
 			}
-			var got []*Batch
-			for _, i := range order {
-				r := rows[i]
-				if err := z.Add(i, r.sensor, r.t, r.t, 2*r.t, 3*r.t, 0); err != nil {
-					t.Fatal(err)
-				}
-				for b := z.Next(); b != nil; b = z.Next() {
-					got = append(got, b)
-				}
-			}
-			z.Flush()
-			for b := z.Next(); b != nil; b = z.Next() {
-				got = append(got, b)
-			}
+			got := addRows(t, z, rows, order)
 			same := len(got) == len(want)
 			for i := 0; same && i < len(want); i++ {
 				same = got[i].Sensor == want[i].Sensor && fmt.Sprint(got[i].Time) == fmt.Sprint(want[i].Time)
