@@ -234,13 +234,15 @@ func TestHelpExamplesRun(t *testing.T) {
 		t.Fatal(err)
 	}
 	t.Chdir(work)
-	runLine := func(what, l string) {
+	runLine := func(what, l string) string {
 		t.Helper()
 		p := parseExample(t, l)
 		args := append([]string{p.cmd.name}, p.args...)
-		if code, _, errOut := cli(t, args...); code != 0 {
+		code, _, errOut := cli(t, args...)
+		if code != 0 {
 			t.Errorf("%s %q: exit %d\n%s", what, l, code, errOut)
 		}
+		return errOut
 	}
 	// The walk-through's logs and calibration: its first three lines, the
 	// first README commands that name no file of the user's own ("Your
@@ -262,7 +264,13 @@ func TestHelpExamplesRun(t *testing.T) {
 		c := commands[name]
 		c.printHelp(&b, c.flagSet(io.Discard))
 		for _, l := range exampleLines(b.String()) {
-			runLine(name+" example", l)
+			errOut := runLine(name+" example", l)
+			// A calibration example shows good practice, so it draws no
+			// warning of its own: a flip about an axis along the field,
+			// say, would teach what the warning advises against.
+			if name == "calibrate" && strings.Contains(errOut, "warning:") {
+				t.Errorf("calibrate example %q warns:\n%s", l, errOut)
+			}
 		}
 	}
 }
