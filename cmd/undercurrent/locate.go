@@ -907,12 +907,19 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		}
 		// A DC log in uT read as nT (unitslip.go).
 		if !o.coil.on() && !sv.ac && !o.read.fieldUnitGiven() {
-			if err := surveyLogUnit(path, s); err != nil {
-				// The refusal says what the band warning said, and more.
+			w, err := surveyLogUnit(path, s)
+			if err != nil || w != "" {
+				// The refusal, or the warning of two readings, says
+				// what the band warning said, and more.
 				sv.warnings = slices.DeleteFunc(sv.warnings, func(w string) bool {
 					return strings.HasPrefix(w, path+": median |B| is ") && strings.Contains(w, earthBand)
 				})
+			}
+			if err != nil {
 				return nil, err
+			}
+			if w != "" {
+				sv.warnings = append(sv.warnings, w)
 			}
 		}
 		if w := ingest.OneTime(s.Time); w != "" && !sv.ac {
