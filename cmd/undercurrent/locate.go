@@ -2972,6 +2972,10 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration, walked 
 	if lc := report.LeastCover(doc); lc != "" {
 		fmt.Fprintln(w, lc)
 	}
+	// Where the route has no station for far longer than its spacing.
+	if gs := report.RouteGapSentence(doc); gs != "" {
+		fmt.Fprintln(w, gs)
+	}
 	// Where chainage 0 is on the ground, as the crew report says it.
 	if z := report.ChainageZero(doc); z != "" {
 		fmt.Fprintln(w, z)
