@@ -420,7 +420,8 @@ func ReadingBasis(p *Problem, src Source) ([][][3]float64, error) {
 // sourceBasis writes the field per unit strength of src, in nanotesla, at every
 // reading into phi: element (row 3i+j, strength c) goes to phi[row*rs + (col+c)*cs].
 // Point readings take the basis at the point; path-averaged readings (Problem.Travel)
-// its three-point Gauss-Legendre mean over the path (pathMean). When the field is not
+// its three-point Gauss-Legendre mean over the path (pathMean), times the reading's
+// Problem.Scale when it is set. When the field is not
 // finite at a reading the error is an *onSourceError, for the caller to name the source.
 func sourceBasis(p *Problem, src Source, phi []float64, rs, cs, col int) error {
 	nodes := []struct {
@@ -456,6 +457,9 @@ func sourceBasis(p *Problem, src Source, phi []float64, rs, cs, col int) error {
 		for c := range k {
 			for j := range 3 {
 				v := sum[c][j] / wsum * nT
+				if p.Scale != nil {
+					v *= p.Scale[i]
+				}
 				if !finite(v) {
 					return &onSourceError{reading: i, at: r, path: p.Travel != nil}
 				}

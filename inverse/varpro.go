@@ -105,8 +105,12 @@ type separable struct {
 	// thi are workspace for the basis and derivatives evaluated there.
 	ptsLo, ptsHi [][3]float64
 	tlo, thi     []float64
-	at           []float64 // x of the cached state
-	ok           bool
+	// scale is the sources' factor per reading (Problem.Scale), nil for 1: it
+	// multiplies the rows of every line and dipole column and of their derivatives,
+	// not the background's.
+	scale []float64
+	at    []float64 // x of the cached state
+	ok    bool
 	// lmp is problem's wrapper for the LM engine, kept by a scratch's separable when it
 	// is lent again (its method values are bound to this separable).
 	lmp *lmProblem
@@ -278,6 +282,17 @@ func (sp *separable) fillPhi(phi []float64, rs, cs int, pos []int) error {
 			for row := range sp.m {
 				k := row*rs + pc*cs
 				phi[k] = pathMean(sp.tlo[k], phi[k], sp.thi[k])
+			}
+		}
+	}
+	if sp.scale != nil {
+		for c := range sp.bgCol() {
+			pc := col(c)
+			if pc < 0 {
+				continue
+			}
+			for row := range sp.m {
+				phi[row*rs+pc*cs] *= sp.scale[row/3]
 			}
 		}
 	}
@@ -637,6 +652,7 @@ func (sp *separable) resid(x, r []float64) error {
 // geometry, so the derivative of the average is the average of the derivatives).
 func (sp *separable) dPhiC(dst []float64, np int) {
 	sp.dPhiCAt(dst, np, sp.pts)
+	defer sp.scaleRows(dst[:sp.m*np*sp.nrhs])
 	if sp.ptsLo == nil {
 		return
 	}
@@ -648,6 +664,22 @@ func (sp *separable) dPhiC(dst []float64, np int) {
 	lo, hi := sp.tlo[:n], sp.thi[:n]
 	for k, v := range dst[:n] {
 		dst[k] = pathMean(lo[k], v, hi[k])
+	}
+}
+
+// scaleRows multiplies the rows of the column-major m-row columns in dst by the
+// sources' factor of their reading (sp.scale), when there is one: every derivative
+// column belongs to a source, whose field the factor scales.
+func (sp *separable) scaleRows(dst []float64) {
+	if sp.scale == nil {
+		return
+	}
+	m := sp.m
+	for c := 0; c+m <= len(dst); c += m {
+		v := dst[c : c+m]
+		for row := range v {
+			v[row] *= sp.scale[row/3]
+		}
 	}
 }
 
