@@ -122,9 +122,10 @@
 //
 //	B_i = bg + r_i Phi_i(theta) c
 //
-// With Problem.Scale = r, fillPhi and dPhiC multiply the rows of the line and dipole
-// columns and of their derivatives by r_i after the path average, before the row
-// weights; the background columns are left alone. The strengths fitted are then those
+// With Problem.Scale = r, fillPhi and dPhiC multiply the rows of the line columns and
+// of their derivatives by r_i after the path average, before the row weights; a
+// dipole (a magnetised object, whose field does not follow the current) and the
+// background are left alone. The strengths fitted are then those
 // at r = 1. Seeding reads the unscaled anomaly, which is close enough to start from.
 //
 // # Levenberg-Marquardt

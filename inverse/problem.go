@@ -34,9 +34,10 @@ type Problem struct {
 	// L/h = 0.2, where Simpson's rule at the same cost would leave 1.3e-5; see
 	// the package documentation). Nil means point readings.
 	Travel [][3]float64
-	// Scale, when not nil, multiplies the sources' fields at each reading (one
-	// positive factor per reading; the background is not scaled): reading i is
-	// modelled as background + Scale[i] Phi_i(theta) c. The field of conductors is
+	// Scale, when not nil, multiplies the conductors' fields at each reading (one
+	// positive factor per reading; lines, segments and polylines, not dipoles,
+	// whose magnetised objects do not follow the current, nor the background):
+	// reading i is modelled as background + Scale[i] Phi_i(theta) c. The field of conductors is
 	// linear in their current, so a current that varies in time by a known ratio
 	// r(t) (a current record, see the package documentation) is r(t_i) here, and
 	// the fitted strengths are those at r = 1. Nil means 1 at every reading.

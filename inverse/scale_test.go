@@ -74,13 +74,15 @@ func TestScaleRecoversMeanCurrent(t *testing.T) {
 	}
 }
 
-// TestScaleLeavesBackground: the factor multiplies the sources' columns only, not the
-// uniform background's, and a factor that is not finite and positive is refused.
+// TestScaleLeavesBackground: the factor multiplies the line's column only, not a
+// dipole's (a magnetised object's field does not follow the current) nor the uniform
+// background's, and a factor that is not finite and positive is refused.
 func TestScaleLeavesBackground(t *testing.T) {
 	pts := traverse(9, -2, 2, 0, 0.3)
 	geom := []lineGeom{newSurvey(&Problem{Points: pts, Fields: make([][3]float64, len(pts))}).geomFrom(seed{e: 0.1, z: -1}, true, true, 0, 0)}
-	plain := newSeparable(pts, make([]float64, 3*len(pts)), 1, BackgroundUniform, [3]float64{}, geom, nil)
-	scaled := newSeparable(pts, make([]float64, 3*len(pts)), 1, BackgroundUniform, [3]float64{}, append([]lineGeom(nil), geom...), nil)
+	dips := []dipGeom{{pos: [3]float64{-0.5, 0.4, -0.8}, lim: 10, zHi: -0.02, zLo: -20}}
+	plain := newSeparable(pts, make([]float64, 3*len(pts)), 1, BackgroundUniform, [3]float64{}, geom, dips)
+	scaled := newSeparable(pts, make([]float64, 3*len(pts)), 1, BackgroundUniform, [3]float64{}, append([]lineGeom(nil), geom...), append([]dipGeom(nil), dips...))
 	scaled.scale = make([]float64, len(pts))
 	for i := range scaled.scale {
 		scaled.scale[i] = 0.5 + 0.1*float64(i)
@@ -98,7 +100,7 @@ func TestScaleLeavesBackground(t *testing.T) {
 		}
 		for c := 1; c < plain.q; c++ {
 			if b[row*plain.q+c] != a[row*plain.q+c] {
-				t.Errorf("row %d: background column %d scaled: %g, want %g", row, c, b[row*plain.q+c], a[row*plain.q+c])
+				t.Errorf("row %d: dipole or background column %d scaled: %g, want %g", row, c, b[row*plain.q+c], a[row*plain.q+c])
 			}
 		}
 	}

@@ -11,7 +11,7 @@ import (
 type survey struct {
 	pts      [][3]float64
 	trav     [][3]float64 // half-travel per reading (Problem.Travel), nil for point readings
-	scale    []float64    // the sources' factor per reading (Problem.Scale), nil for 1
+	scale    []float64    // the conductors' factor per reading (Problem.Scale), nil for 1
 	lo, hi   [][3]float64 // outer quadrature nodes of each reading's path, pts -/+ gaussNode trav; nil for point readings
 	y        []float64    // 3 rows per point x nrhs, row-major (nT)
 	nrhs     int

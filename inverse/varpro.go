@@ -105,9 +105,10 @@ type separable struct {
 	// thi are workspace for the basis and derivatives evaluated there.
 	ptsLo, ptsHi [][3]float64
 	tlo, thi     []float64
-	// scale is the sources' factor per reading (Problem.Scale), nil for 1: it
-	// multiplies the rows of every line and dipole column and of their derivatives,
-	// not the background's.
+	// scale is the conductors' factor per reading (Problem.Scale), nil for 1: it
+	// multiplies the rows of every line column and of their derivatives, not the
+	// dipoles' (a magnetised object's field does not follow the current) nor the
+	// background's.
 	scale []float64
 	at    []float64 // x of the cached state
 	ok    bool
@@ -286,7 +287,7 @@ func (sp *separable) fillPhi(phi []float64, rs, cs int, pos []int) error {
 		}
 	}
 	if sp.scale != nil {
-		for c := range sp.bgCol() {
+		for c := range len(sp.geom) {
 			pc := col(c)
 			if pc < 0 {
 				continue
@@ -652,7 +653,7 @@ func (sp *separable) resid(x, r []float64) error {
 // geometry, so the derivative of the average is the average of the derivatives).
 func (sp *separable) dPhiC(dst []float64, np int) {
 	sp.dPhiCAt(dst, np, sp.pts)
-	defer sp.scaleRows(dst[:sp.m*np*sp.nrhs])
+	defer sp.scaleRows(dst[:sp.m*sp.lineParams()*sp.nrhs])
 	if sp.ptsLo == nil {
 		return
 	}
@@ -667,9 +668,18 @@ func (sp *separable) dPhiC(dst []float64, np int) {
 	}
 }
 
+// lineParams is the number of the lines' free parameters, which come first.
+func (sp *separable) lineParams() int {
+	n := 0
+	for i := range sp.geom {
+		n += sp.geom[i].nfree()
+	}
+	return n
+}
+
 // scaleRows multiplies the rows of the column-major m-row columns in dst by the
-// sources' factor of their reading (sp.scale), when there is one: every derivative
-// column belongs to a source, whose field the factor scales.
+// conductors' factor of their reading (sp.scale), when there is one: dPhiC hands it
+// the lines' derivative columns, whose field the factor scales.
 func (sp *separable) scaleRows(dst []float64) {
 	if sp.scale == nil {
 		return
