@@ -1,0 +1,197 @@
+package main
+
+import (
+	"encoding/json"
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+// A DC traction return walked while the load swings (invented site: a
+// return cable along east, 200 A at 0.9 m cover, swinging +-30 % over a
+// 97 s cycle; 8 traverses 12 m long, 5 m apart, walked boustrophedon at
+// 0.5 m/s with 10 s turns, sensor at 0.3 m, 2 nT noise). The rectifier's
+// current record, one sample a second, is what the survey's current
+// follows (linear between samples). The field is the infinite line's
+// (Biot-Savart, DOMAIN.md).
+
+const (
+	tractionT0    = 1772445600.0 // 2026-03-02 10:00 UTC
+	tractionI0    = 200.0
+	tractionSwing = 0.3
+)
+
+// tractionCurrent is the record's current at its sample times (1 s).
+func tractionCurrent(k int) float64 {
+	return tractionI0 * (1 + tractionSwing*math.Sin(2*math.Pi*float64(k)/97))
+}
+
+// tractionLogs writes the survey log and the current record into dir and
+// returns their paths and the record's time average over the survey
+// (trapezoidal: exact for the linear interpolant between samples).
+func tractionLogs(t *testing.T, dir string) (survey, record string, mean float64) {
+	t.Helper()
+	const k2pi = 1.25663706127e-6 / (2 * math.Pi) * 1e9 // nT m / A (CODATA 2022 mu0)
+	interp := func(s float64) float64 {
+		k := int(math.Floor(s))
+		w := s - float64(k)
+		return (1-w)*tractionCurrent(k) + w*tractionCurrent(k+1)
+	}
+	rng := rand.New(rand.NewPCG(23, 4))
+	var b strings.Builder
+	b.WriteString("time,x,y,z,bx,by,bz,group\n")
+	s, first, last := 0.0, 0.0, 0.0
+	for i := range 8 {
+		x := 2 + 5*float64(i)
+		for j := 0; j <= 96; j++ {
+			y := -6 + 0.125*float64(j)
+			if i%2 == 1 {
+				y = -y
+			}
+			ts := s + 0.25*float64(j)
+			if i == 0 && j == 0 {
+				first = ts
+			}
+			last = ts
+			cur := interp(ts)
+			rz := 0.3 + 0.9
+			r2 := y*y + rz*rz
+			by, bz := -k2pi*cur*rz/r2, k2pi*cur*y/r2
+			fmt.Fprintf(&b, "%.2f,%.3f,%.3f,0.3,%.3f,%.3f,%.3f,T%d\n", tractionT0+ts, x, y,
+				-150+2*rng.NormFloat64(), 19200+by+2*rng.NormFloat64(), -45100+bz+2*rng.NormFloat64(), i+1)
+		}
+		s += 24 + 10
+	}
+	survey = filepath.Join(dir, "walk.csv")
+	if err := os.WriteFile(survey, []byte(b.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	var r strings.Builder
+	r.WriteString("time,current_A\n")
+	for k := 0; float64(k) <= s+5; k++ {
+		fmt.Fprintf(&r, "%.1f,%.6f\n", tractionT0+float64(k), tractionCurrent(k))
+	}
+	record = filepath.Join(dir, "rectifier.csv")
+	if err := os.WriteFile(record, []byte(r.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	// Time average from the first reading to the last: whole seconds are
+	// trapezoids; the ends are partial ones.
+	area := 0.0
+	for k := int(math.Floor(first)); float64(k) < last; k++ {
+		a, c := math.Max(float64(k), first), math.Min(float64(k+1), last)
+		area += 0.5 * (interp(a) + interp(c)) * (c - a)
+	}
+	return survey, record, area / (last - first)
+}
+
+// TestCurrentReferenceTraction: with the rectifier's record every traverse
+// is fitted with one line whose current is the record's mean over the
+// survey within its sigma (three sigma; and the cover within three sigma of
+// 0.9 m), and the notes say to what current they are scaled; without it the
+// same readings give phantom lines. Fails before --current-reference existed.
+func TestCurrentReferenceTraction(t *testing.T) {
+	dir := t.TempDir()
+	walk, rec, mean := tractionLogs(t, dir)
+	lines := func(doc *resultDoc) (extra int) {
+		for _, g := range doc.Groups {
+			extra += len(g.Sources) - 1
+		}
+		return extra
+	}
+	var plain resultDoc
+	if err := json.Unmarshal([]byte(mustCLI(t, "locate", "--group-by", "group", "--reference-z", "0", "--json", walk)), &plain); err != nil {
+		t.Fatal(err)
+	}
+	t.Logf("without the record: %d extra lines on %d traverses", lines(&plain), len(plain.Groups))
+	if lines(&plain) == 0 {
+		t.Errorf("without the record no phantom line: the fixture does not test the scaling")
+	}
+	var doc resultDoc
+	if err := json.Unmarshal([]byte(mustCLI(t, "locate", "--group-by", "group", "--reference-z", "0", "--current-reference", rec, "--json", walk)), &doc); err != nil {
+		t.Fatal(err)
+	}
+	if len(doc.Groups) != 8 {
+		t.Fatalf("%d groups, want 8", len(doc.Groups))
+	}
+	for _, g := range doc.Groups {
+		if len(g.Sources) != 1 {
+			t.Errorf("%s: %d lines with the record, want 1", g.Key, len(g.Sources))
+			continue
+		}
+		s := g.Sources[0]
+		t.Logf("%s: %.3f +- %.3f A (mean %.3f), cover %.4f +- %.4f m", g.Key, math.Abs(s.Current), s.CurrentSigma, mean, s.Depth, s.DepthSigma)
+		if math.Abs(math.Abs(s.Current)-mean) > 3*s.CurrentSigma || math.Abs(s.Depth-0.9) > 3*s.DepthSigma {
+			t.Errorf("%s: %.3f +- %.3f A, cover %.4f +- %.4f m: want %.3f A, 0.9 m", g.Key, math.Abs(s.Current), s.CurrentSigma, s.Depth, s.DepthSigma, mean)
+		}
+	}
+	want := fmt.Sprintf("currents scaled to the reference's mean of %.4g A", mean)
+	found := false
+	for _, n := range doc.Notes {
+		found = found || strings.Contains(n, want) && strings.Contains(n, rec)
+	}
+	if !found {
+		t.Errorf("no note %q naming %s: %q", want, rec, doc.Notes)
+	}
+}
+
+// TestCurrentReferenceRefused: a record that does not cover the survey,
+// whose times do not overlap it, or whose current is missing or not
+// positive within it is refused, naming the file (and the time); so is the
+// record with --freq, and its column flag without it.
+func TestCurrentReferenceRefused(t *testing.T) {
+	dir := t.TempDir()
+	walk, rec, _ := tractionLogs(t, dir)
+	data, err := os.ReadFile(rec)
+	if err != nil {
+		t.Fatal(err)
+	}
+	rows := strings.Split(strings.TrimRight(string(data), "\n"), "\n")
+	write := func(name string, rows []string) string {
+		p := filepath.Join(dir, name)
+		if err := os.WriteFile(p, []byte(strings.Join(rows, "\n")+"\n"), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		return p
+	}
+	edit := func(k int, text string) []string {
+		out := append([]string(nil), rows...)
+		out[k] = text
+		return out
+	}
+	day := []string{rows[0]}
+	for _, r := range rows[1:] {
+		var ts, cur float64
+		fmt.Sscanf(strings.Replace(r, ",", " ", 1), "%g %g", &ts, &cur)
+		day = append(day, fmt.Sprintf("%.1f,%.6f", ts+86400, cur))
+	}
+	for _, tc := range []struct {
+		name string
+		rows []string
+		want string
+	}{
+		{"short.csv", rows[:200], "does not cover the survey: it ends"},
+		{"late.csv", append(rows[:1:1], rows[20:]...), "does not cover the survey: it starts"},
+		{"day.csv", day, "do not overlap the survey's"},
+		{"zero.csv", edit(101, fmt.Sprintf("%.1f,0", tractionT0+100)), "is 0 A, not positive"},
+		{"gap.csv", edit(101, fmt.Sprintf("%.1f,", tractionT0+100)), "is missing"},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			p := write(tc.name, tc.rows)
+			code, _, errOut := cli(t, "locate", "--group-by", "group", "--current-reference", p, walk)
+			if code != 1 || !strings.Contains(errOut, tc.want) || !strings.Contains(errOut, p) {
+				t.Errorf("exit %d, want 1 and %q naming %s:\n%s", code, tc.want, p, errOut)
+			}
+		})
+	}
+	if code, _, errOut := cli(t, "locate", "--freq", "50", "--current-reference", rec, walk); code != 2 || !strings.Contains(errOut, "DC fits only") {
+		t.Errorf("--freq with a record: exit %d\n%s", code, errOut)
+	}
+	if code, _, errOut := cli(t, "locate", "--current-reference-column", "current=I", walk); code != 2 || !strings.Contains(errOut, "needs --current-reference") {
+		t.Errorf("column flag alone: exit %d\n%s", code, errOut)
+	}
+}
