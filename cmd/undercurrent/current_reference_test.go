@@ -195,3 +195,65 @@ func TestCurrentReferenceRefused(t *testing.T) {
 		t.Errorf("column flag alone: exit %d\n%s", code, errOut)
 	}
 }
+
+// tractionBase writes a base record into dir: the Earth's field plus a
+// geomagnetic-sized variation (a 30 nT swing over the hour), and, with
+// beside set, the field of the traction return from a fixed sensor 1.5 m
+// from it at the record's current (the crew's likely misuse: the fixed
+// sensor logged beside the cable given as --base).
+func tractionBase(t *testing.T, dir, name string, beside bool) string {
+	t.Helper()
+	const k2pi = 1.25663706127e-6 / (2 * math.Pi) * 1e9 // nT m / A
+	var b strings.Builder
+	b.WriteString("time,bx,by,bz\n")
+	for k := 0; k <= 300; k++ {
+		geo := 30 * math.Sin(2*math.Pi*float64(k)/3600)
+		by, bz := 19200+geo, -45100.0
+		if beside {
+			// The sensor 1.5 m above the cable: the field is horizontal,
+			// across it.
+			by -= k2pi * tractionCurrent(k) / 1.5
+		}
+		fmt.Fprintf(&b, "%.1f,-150,%.3f,%.3f\n", tractionT0+float64(k), by, bz)
+	}
+	p := filepath.Join(dir, name)
+	if err := os.WriteFile(p, []byte(b.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return p
+}
+
+// TestBaseInConductorField: a base record whose departures reach
+// thousands of nT (a fixed sensor beside the traction return, 200 A +-30 %
+// at 1.5 m moves it by about 8000 nT) is warned of, first, naming a
+// conductor's field as the cause and --current-reference as the remedy; a
+// base whose variation is geomagnetic in size (30 nT) is not. Fails
+// before: the run warned of the clock and the calibration instead.
+func TestBaseInConductorField(t *testing.T) {
+	dir := t.TempDir()
+	walk, _, _ := tractionLogs(t, dir)
+	for _, tc := range []struct {
+		beside bool
+		want   bool
+	}{{true, true}, {false, false}} {
+		base := tractionBase(t, dir, fmt.Sprintf("base-%v.csv", tc.beside), tc.beside)
+		var doc resultDoc
+		code, out, errOut := cli(t, "locate", "--group-by", "group", "--reference-z", "0", "--base", base, "--json", walk)
+		if code != 0 {
+			t.Fatalf("exit %d\n%s", code, errOut)
+		}
+		if err := json.Unmarshal([]byte(out), &doc); err != nil {
+			t.Fatal(err)
+		}
+		got := len(doc.Warnings) > 0 && strings.Contains(doc.Warnings[0], "in a conductor's field") &&
+			strings.Contains(doc.Warnings[0], base) && strings.Contains(doc.Warnings[0], "--current-reference")
+		if got != tc.want {
+			t.Errorf("base beside the cable %v: first warning names a conductor's field %v, want %v; warnings:\n%s", tc.beside, got, tc.want, strings.Join(doc.Warnings, "\n"))
+		}
+		for _, w := range doc.Warnings[1:] {
+			if strings.Contains(w, "in a conductor's field") {
+				t.Errorf("said again: %s", w)
+			}
+		}
+	}
+}

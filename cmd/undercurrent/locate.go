@@ -906,6 +906,7 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 	// The base correction's warning that the base record's east and north
 	// are not geographic (the reader's is left out: baseOptions).
 	baseFrameNote, baseFrameSaid := "", false
+	baseFieldSaid := false // baseInConductorField's warning given
 	if base != nil {
 		baseFrameNote = calibrate.BaseFrameWarning(base)
 	}
@@ -1181,6 +1182,10 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 				return nil, err
 			}
 			baseNotes = append(baseNotes, baseSummary(path, rep))
+			if w := baseInConductorField(o.base, path, rep); w != "" && !baseFieldSaid {
+				baseFieldSaid = true
+				sv.alerts = append(sv.alerts, w)
+			}
 			if sv.baseRover == nil {
 				lo, hi := finiteSpan(s.Time)
 				sv.baseRover = &ingest.Samples{Time: []float64{lo, hi}, NaiveTime: s.NaiveTime, TimeSaidUTC: s.TimeSaidUTC, Source: s.Source, Meta: s.Meta}
