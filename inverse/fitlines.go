@@ -237,7 +237,10 @@ func fitLinesFloor(p *Problem, set *Settings, wantFloor bool, floor *float64) (*
 		scratchPool.Put(scr)
 	}()
 	sv := newSurveyIn(p, scr)
-	if sv.extent == 0 {
+	// Within a millimetre (distinctPlaces' tolerance), not exactly 0: the mean of
+	// many equal coordinates (0.8 m, say) is not always that coordinate, and a
+	// fixed sensor's record then went on to a fit of nothing.
+	if !(sv.extent >= 1e-3) {
 		return nil, errors.New("inverse: all readings share one horizontal position; a line cannot be located from them")
 	}
 	if a := sv.anomaly(); norm(a[peak(a)]) == 0 {

@@ -257,3 +257,60 @@ func TestBaseInConductorField(t *testing.T) {
 		}
 	}
 }
+
+// TestFixedSensorNoChainageOrigin: a fixed reference magnetometer's log
+// (every reading at one place, 5.1 m from the first traverse) read with the
+// survey fails to fit, as it must; it is no station of the route, so
+// chainage 0 stays at the first traverse, the group has no chainage, and a
+// caution still names its failure. Fails before: the failed group was the
+// first station along the route and set chainage 0 there, moving every
+// chainage by 5.1 m.
+func TestFixedSensorNoChainageOrigin(t *testing.T) {
+	dir := t.TempDir()
+	walk, rec, _ := tractionLogs(t, dir)
+	const k2pi = 1.25663706127e-6 / (2 * math.Pi) * 1e9 // nT m / A
+	var b strings.Builder
+	b.WriteString("time,x,y,z,bx,by,bz,group\n")
+	for k := 0; k <= 270; k++ {
+		y, rz := 0.8, 1.2
+		cur := tractionCurrent(k)
+		r2 := y*y + rz*rz
+		fmt.Fprintf(&b, "%.1f,-3.0,%.1f,0.3,-150,%.3f,%.3f,REF\n", tractionT0+float64(k), y, 19200-k2pi*cur*rz/r2, -45100+k2pi*cur*y/r2)
+	}
+	ref := filepath.Join(dir, "fixed.csv")
+	if err := os.WriteFile(ref, []byte(b.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	var doc resultDoc
+	if err := json.Unmarshal([]byte(mustCLI(t, "locate", "--group-by", "group", "--reference-z", "0", "--current-reference", rec, "--json", walk, ref)), &doc); err != nil {
+		t.Fatal(err)
+	}
+	found := false
+	chain := func(c *float64) string {
+		if c == nil {
+			return "none"
+		}
+		return fmt.Sprintf("%.2f m", *c)
+	}
+	for _, g := range doc.Groups {
+		switch {
+		case g.Key == "REF":
+			found = true
+			if g.OK || g.Chainage != nil {
+				t.Errorf("REF: ok %v, chainage %s: want a failed fit with no chainage", g.OK, chain(g.Chainage))
+			}
+		case g.Key == "T1" && (g.Chainage == nil || math.Abs(*g.Chainage) > 1e-9):
+			t.Errorf("T1's chainage %s, want 0", chain(g.Chainage))
+		}
+	}
+	if !found {
+		t.Fatal("no REF group")
+	}
+	said := false
+	for _, f := range doc.Findings {
+		said = said || f.Kind == "poor-fit" && len(f.Groups) == 1 && f.Groups[0] == "REF" && strings.Contains(f.Message, "fixed sensor")
+	}
+	if !said {
+		t.Errorf("no caution names REF's failed fit as a fixed sensor's")
+	}
+}
