@@ -356,7 +356,7 @@ or a slower walk.
 
 The input flags (--column, --unit, --delimiter, --header, --comment,
 --frame, --origin, --decimal-comma, --iaga-baseline-frame, --time-order,
---allow-unterminated, --drop-missing), the same for every command that
+--time-offset, --date-order, --allow-unterminated, --drop-missing), the same for every command that
 reads logs, apply to the survey logs. Of them, only --time-order,
 --allow-unterminated and --iaga-baseline-frame apply to the base log
 (--base) too; it comes from another instrument, usually in another format,
@@ -1666,14 +1666,19 @@ func zoneWords(base, rover *ingest.Samples, m int, what string) string {
 		}
 		return "they carry their UTC offset or are seconds since 1970, UTC either way"
 	}
-	// local words the hint for one log read m minutes late (its local
-	// times of zone UTC+m read as UTC); t0 is its first time.
-	local := func(who string, m int, t0 float64) string {
-		return fmt.Sprintf("are %s times the local times of a zone UTC%s written without their offset (and so read as UTC)? If so, write the offset into them (such as %s%s)", who, zone(m), stamp(t0), zone(m))
-	}
 	roverName := "the survey log's"
 	if rover.Source != "" {
 		roverName = rover.Source + "'s"
+	}
+	// local words the hint for one log read m minutes late (its local
+	// times of zone UTC+m read as UTC); t0 is its first time.
+	local := func(who string, m int, t0 float64) string {
+		give := ""
+		if who == roverName {
+			// The survey logs take --time-offset; the base log does not.
+			give = fmt.Sprintf(", or give it with --time-offset %s", zone(m))
+		}
+		return fmt.Sprintf("are %s times the local times of a zone UTC%s written without their offset (and so read as UTC)? If so, write the offset into them (such as %s%s)%s", who, zone(m), stamp(t0), zone(m), give)
 	}
 	blo, _ := finiteSpan(base.Time)
 	rlo, _ := finiteSpan(rover.Time)
