@@ -26,6 +26,11 @@ const (
 	// ColF is the scalar total field in nT (IAGA-2002 F), an addition to
 	// the agreed set; absent from most logs.
 	ColF = "f"
+	// ColCurrent is a conductor's current in amperes, the column of a
+	// current record (a rectifier's or a clamp meter's log, read with
+	// WithCurrentRecord); an addition to the agreed set, absent from
+	// magnetometer logs.
+	ColCurrent = "current"
 )
 
 // Names of input-only columns that carry WGS84 positions. They never appear
@@ -71,6 +76,7 @@ const (
 	cQy
 	cQz
 	cF
+	cCurrent
 	cLat
 	cLon
 	cHeight
@@ -80,7 +86,7 @@ const (
 
 var canonNames = [nCanon]string{
 	ColTime, ColX, ColY, ColZ, ColBx, ColBy, ColBz, ColGroup, ColTemp,
-	ColRoll, ColPitch, ColYaw, ColQw, ColQx, ColQy, ColQz, ColF,
+	ColRoll, ColPitch, ColYaw, ColQw, ColQx, ColQy, ColQz, ColF, ColCurrent,
 	colLat, colLon, colHeight,
 }
 
@@ -125,6 +131,7 @@ const (
 	kindField
 	kindAngle
 	kindTemp
+	kindCurrent
 	kindPlain // quaternion components, group
 	kindDegrees
 )
@@ -141,6 +148,8 @@ func kindOf(c int) kind {
 		return kindAngle
 	case cTemp:
 		return kindTemp
+	case cCurrent:
+		return kindCurrent
 	case cLat, cLon:
 		return kindDegrees
 	}

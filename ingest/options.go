@@ -75,6 +75,7 @@ type config struct {
 	originMode        originMode
 	allowMissing      bool
 	timeOptional      bool // a log without a time column is read, its times NaN (WithTimeOptional)
+	currentRecord     bool // time and current are required, not the field (WithCurrentRecord)
 	allowBackwards    bool
 	groupOrder        bool          // time must not go backwards within each group (WithTimeOrder)
 	allowUnterminated bool          // Arrow IPC stream files may lack the end-of-stream marker
@@ -251,6 +252,13 @@ func WithAllowMissing(ok bool) Option { return func(c *config) { c.allowMissing 
 // without the option. By default a log without one is an error naming the
 // file and the columns found.
 func WithTimeOptional(ok bool) Option { return func(c *config) { c.timeOptional = ok } }
+
+// WithCurrentRecord(true) reads a current record: a log of a conductor's
+// current in time (a rectifier's or a clamp meter's), whose required
+// columns are time and current (ColCurrent, in A unless a unit option or
+// the name's suffix says mA or kA: "current_A", "I (kA)" mapped to
+// current) instead of bx, by and bz. Samples.Current holds it.
+func WithCurrentRecord(ok bool) Option { return func(c *config) { c.currentRecord = ok } }
 
 // WithAllowBackwards(true) accepts time going backwards anywhere, as
 // WithTimeOrder(TimeAnyOrder) does; WithAllowBackwards(false) restores the

@@ -500,7 +500,11 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 	// Required columns.
 	var missing []string
 	p.noTime = p.src[cTime] < 0 && cfg.timeOptional
-	for _, c := range []int{cTime, cBx, cBy, cBz} {
+	required := []int{cTime, cBx, cBy, cBz}
+	if cfg.currentRecord {
+		required = []int{cTime, cCurrent}
+	}
+	for _, c := range required {
 		if p.src[c] < 0 && !(c == cTime && p.noTime) {
 			missing = append(missing, canonNames[c])
 		}
@@ -1048,6 +1052,8 @@ func defaultUnit(k kind) string {
 		return "deg"
 	case kindTemp:
 		return "C"
+	case kindCurrent:
+		return "A"
 	}
 	return ""
 }

@@ -27,6 +27,7 @@ type Samples struct {
 	Qw, Qx     []float64         // attitude quaternion, nil when absent
 	Qy, Qz     []float64         // attitude quaternion, nil when absent
 	F          []float64         // scalar total field, nT (IAGA-2002 F); nil when absent
+	Current    []float64         // a conductor's current, A (a current record, WithCurrentRecord); nil when absent
 	Frame      Frame             // FrameENU (default) or FrameSensor
 	Origin     *Geodetic         // non-nil when positions were converted from WGS84 lat/lon/height
 	Meta       map[string]string // e.g. IAGA-2002 header fields ("station_name", "geodetic_latitude", ...)
@@ -106,6 +107,8 @@ func (s *Samples) column(c int) *[]float64 {
 		return &s.Qz
 	case cF:
 		return &s.F
+	case cCurrent:
+		return &s.Current
 	}
 	return nil
 }
@@ -179,6 +182,13 @@ func Collect(r Reader) (*Samples, error) {
 	}
 	missing := 0
 	for i := range s.Time {
+		if s.Bx == nil {
+			// A current record (WithCurrentRecord): no field.
+			if i < len(s.Current) && math.IsNaN(s.Current[i]) {
+				missing++
+			}
+			continue
+		}
 		if math.IsNaN(s.Bx[i]) || math.IsNaN(s.By[i]) || math.IsNaN(s.Bz[i]) {
 			missing++
 		}
@@ -233,7 +243,7 @@ func (s *Samples) schema() (*arrow.Schema, []int, error) {
 		}
 		v := *s.column(c)
 		if v == nil {
-			if c == cBx || c == cBy || c == cBz {
+			if (c == cBx || c == cBy || c == cBz) && s.Current == nil {
 				return nil, nil, fmt.Errorf("ingest: %s: column %s is missing", name, canonNames[c])
 			}
 			continue

@@ -169,6 +169,16 @@ func unitScale(k kind, u string) (float64, error) {
 			return 1, nil
 		}
 		return 0, fmt.Errorf("unknown temperature unit %q (want C)", u)
+	case kindCurrent:
+		switch strings.ToLower(s) {
+		case "a", "amp", "amps", "ampere", "amperes":
+			return 1, nil
+		case "ma":
+			return 1e-3, nil
+		case "ka":
+			return 1e3, nil
+		}
+		return 0, fmt.Errorf("unknown current unit %q (want A, mA or kA)", u)
 	case kindDegrees:
 		if strings.ToLower(s) == "deg" {
 			return 1, nil

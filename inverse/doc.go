@@ -114,6 +114,20 @@
 // way. The cost is three basis evaluations per reading; nothing when Travel is nil.
 // Seeding reads the field at the centre points, which is close enough to start from.
 //
+// # Currents that vary in time by a known ratio
+//
+// Every source is linear in its strength (DOMAIN.md, forward models), so when each
+// conductor's current at reading i is r_i times its value at r = 1 (a DC traction load
+// recorded at the rectifier, r_i = I_ref(t_i) / mean I_ref), the model stays separable:
+//
+//	B_i = bg + r_i Phi_i(theta) c
+//
+// With Problem.Scale = r, fillPhi and dPhiC multiply the rows of the line columns and
+// of their derivatives by r_i after the path average, before the row weights; a
+// dipole (a magnetised object, whose field does not follow the current) and the
+// background are left alone. The strengths fitted are then those
+// at r = 1. Seeding reads the unscaled anomaly, which is close enough to start from.
+//
 // # Levenberg-Marquardt
 //
 // The optimiser is Levenberg-Marquardt with scaled trust-region steps (J. J. More,

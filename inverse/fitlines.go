@@ -237,7 +237,10 @@ func fitLinesFloor(p *Problem, set *Settings, wantFloor bool, floor *float64) (*
 		scratchPool.Put(scr)
 	}()
 	sv := newSurveyIn(p, scr)
-	if sv.extent == 0 {
+	// Within a millimetre (distinctPlaces' tolerance), not exactly 0: the mean of
+	// many equal coordinates (0.8 m, say) is not always that coordinate, and a
+	// fixed sensor's record then went on to a fit of nothing.
+	if !(sv.extent >= 1e-3) {
 		return nil, errors.New("inverse: all readings share one horizontal position; a line cannot be located from them")
 	}
 	if a := sv.anomaly(); norm(a[peak(a)]) == 0 {
@@ -1466,6 +1469,7 @@ func (f *fitter) reseedStarts(c *candidate) [][]start {
 		others := append(append([]lineGeom(nil), geom[:i]...), geom[i+1:]...)
 		sp := newSeparableIn(f.scr, f.sv.pts, f.sv.y, f.sv.nrhs, f.set.Background, f.sv.centroid, others, dips)
 		sp.ptsLo, sp.ptsHi = f.sv.lo, f.sv.hi
+		sp.scale = f.sv.scale
 		sp.lmWork, sp.scr, sp.pd = &f.scr.lm, f.scr, &f.sv.proj
 		x, _, _ := sp.packInto(nil)
 		res, err := sp.fullResiduals(x)
@@ -1671,6 +1675,7 @@ func (f *fitter) bestOf(starts []start, quick bool) (*candidate, error) {
 		}
 		sp := newSeparableIn(f.scr, sub.pts, sub.y, sub.nrhs, f.set.Background, f.sv.centroid, geom, dips)
 		sp.ptsLo, sp.ptsHi = sub.lo, sub.hi
+		sp.scale = sub.scale
 		sp.lmWork, sp.scr, sp.pd = &f.scr.lm, f.scr, &sub.proj
 		if prev != nil {
 			sp.a, sp.qty, sp.coef, sp.tau, sp.bbar = prev.a, prev.qty, prev.coef, prev.tau, prev.bbar
@@ -1732,6 +1737,7 @@ func (f *fitter) bestOf(starts []start, quick bool) (*candidate, error) {
 			}
 			st.sp = newSeparableIn(f.scr, f.sv.pts, f.sv.y, f.sv.nrhs, f.set.Background, f.sv.centroid, st.st.lines, st.st.dips)
 			st.sp.ptsLo, st.sp.ptsHi = f.sv.lo, f.sv.hi
+			st.sp.scale = f.sv.scale
 			st.sp.lmWork, st.sp.scr, st.sp.pd = &f.scr.lm, f.scr, &f.sv.proj
 		}
 		lmp, _ := st.sp.problem()
@@ -2097,6 +2103,7 @@ func (f *fitter) preIterate(sub *survey, st start, x0 []float64, ls lmSettings) 
 	geom, dips := append([]lineGeom(nil), st.lines...), append([]dipGeom(nil), st.dips...)
 	sp := newSeparableIn(f.scr, sub.pts, sub.y, sub.nrhs, f.set.Background, f.sv.centroid, geom, dips)
 	sp.ptsLo, sp.ptsHi = sub.lo, sub.hi
+	sp.scale = sub.scale
 	sp.lmWork, sp.scr, sp.pd = &f.scr.lm, f.scr, &sub.proj
 	lmp, _ := sp.problem()
 	res, err := levmar(lmp, x0, ls)
@@ -2433,6 +2440,11 @@ func (f *fitter) underModelError(c *candidate, inPair []bool, skip int) string {
 		ln := c.sp.geom[l].line()
 		if !lineColumn(col, ln.Dir, ln.Point, pts) {
 			return ""
+		}
+		if sc := f.sv.scale; sc != nil {
+			for row := range col {
+				col[row] *= sc[row/3]
+			}
 		}
 		var ss float64
 		for _, v := range col {

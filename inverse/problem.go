@@ -34,11 +34,19 @@ type Problem struct {
 	// L/h = 0.2, where Simpson's rule at the same cost would leave 1.3e-5; see
 	// the package documentation). Nil means point readings.
 	Travel [][3]float64
+	// Scale, when not nil, multiplies the conductors' fields at each reading (one
+	// positive factor per reading; lines, segments and polylines, not dipoles,
+	// whose magnetised objects do not follow the current, nor the background):
+	// reading i is modelled as background + Scale[i] Phi_i(theta) c. The field of conductors is
+	// linear in their current, so a current that varies in time by a known ratio
+	// r(t) (a current record, see the package documentation) is r(t_i) here, and
+	// the fitted strengths are those at r = 1. Nil means 1 at every reading.
+	Scale []float64
 }
 
 // Subset returns a problem holding the readings i of p for which keep(i)
 // is true, in their order, with p's Sigma: points, fields or phasors and
-// travels alike (the per-reading slices p gives). The readings' arrays are
+// travels and scales alike (the per-reading slices p gives). The readings' arrays are
 // copied; p is not changed.
 func (p *Problem) Subset(keep func(i int) bool) *Problem {
 	q := &Problem{Sigma: p.Sigma}
@@ -55,6 +63,9 @@ func (p *Problem) Subset(keep func(i int) bool) *Problem {
 		}
 		if p.Travel != nil {
 			q.Travel = append(q.Travel, p.Travel[i])
+		}
+		if p.Scale != nil {
+			q.Scale = append(q.Scale, p.Scale[i])
 		}
 	}
 	return q
@@ -77,8 +88,15 @@ func (p *Problem) validate() error {
 		return fmt.Errorf("inverse: %d points but %d phasor readings", n, len(p.Phasors))
 	case p.Travel != nil && len(p.Travel) != n:
 		return fmt.Errorf("inverse: %d points but %d travel vectors", n, len(p.Travel))
+	case p.Scale != nil && len(p.Scale) != n:
+		return fmt.Errorf("inverse: %d points but %d scale factors", n, len(p.Scale))
 	case p.Sigma < 0 || math.IsNaN(p.Sigma) || math.IsInf(p.Sigma, 0):
 		return fmt.Errorf("inverse: reading noise Sigma = %v must be finite and not negative", p.Sigma)
+	}
+	for i, v := range p.Scale {
+		if !(v > 0) || math.IsInf(v, 0) {
+			return fmt.Errorf("inverse: reading %d: scale factor %v must be finite and positive", i, v)
+		}
 	}
 	if p.allFinite() {
 		return nil

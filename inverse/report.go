@@ -1749,6 +1749,7 @@ func (f *fitter) splitSigmas(c *candidate, base []float64, h float64, i, j int) 
 	}
 	sp2 := newSeparableIn(f.scr, f.sv.pts, f.sv.y, f.sv.nrhs, f.set.Background, f.sv.centroid, geom, dips)
 	sp2.ptsLo, sp2.ptsHi = f.sv.lo, f.sv.hi
+	sp2.scale = f.sv.scale
 	sp2.lmWork, sp2.scr, sp2.pd = &f.scr.lm, f.scr, &f.sv.proj
 	sp2.w = sp.w
 	x, _, _ := sp2.packInto(f.scr.take(3 * sp2.nparams()))

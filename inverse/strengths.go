@@ -420,7 +420,8 @@ func ReadingBasis(p *Problem, src Source) ([][][3]float64, error) {
 // sourceBasis writes the field per unit strength of src, in nanotesla, at every
 // reading into phi: element (row 3i+j, strength c) goes to phi[row*rs + (col+c)*cs].
 // Point readings take the basis at the point; path-averaged readings (Problem.Travel)
-// its three-point Gauss-Legendre mean over the path (pathMean). When the field is not
+// its three-point Gauss-Legendre mean over the path (pathMean), times the reading's
+// Problem.Scale when it is set and src carries a current (carriesCurrent). When the field is not
 // finite at a reading the error is an *onSourceError, for the caller to name the source.
 func sourceBasis(p *Problem, src Source, phi []float64, rs, cs, col int) error {
 	nodes := []struct {
@@ -456,6 +457,9 @@ func sourceBasis(p *Problem, src Source, phi []float64, rs, cs, col int) error {
 		for c := range k {
 			for j := range 3 {
 				v := sum[c][j] / wsum * nT
+				if p.Scale != nil && carriesCurrent(src) {
+					v *= p.Scale[i]
+				}
 				if !finite(v) {
 					return &onSourceError{reading: i, at: r, path: p.Travel != nil}
 				}
@@ -543,4 +547,15 @@ func solveLinear(phi []float64, m, q int, y []float64, nrhs int) ([]float64, err
 		}
 	}
 	return coef, nil
+}
+
+// carriesCurrent reports whether src is a conductor, whose field Problem.Scale
+// scales: a line, segment or polyline, not a magnetised object (Dipole) or the
+// background.
+func carriesCurrent(src Source) bool {
+	switch src.(type) {
+	case Dipole, *Dipole, Background, *Background:
+		return false
+	}
+	return true
 }

@@ -11,6 +11,7 @@ import (
 type survey struct {
 	pts      [][3]float64
 	trav     [][3]float64 // half-travel per reading (Problem.Travel), nil for point readings
+	scale    []float64    // the conductors' factor per reading (Problem.Scale), nil for 1
 	lo, hi   [][3]float64 // outer quadrature nodes of each reading's path, pts -/+ gaussNode trav; nil for point readings
 	y        []float64    // 3 rows per point x nrhs, row-major (nT)
 	nrhs     int
@@ -52,8 +53,14 @@ func (sv *survey) screening() *survey {
 	if sv.lo != nil {
 		sub.lo, sub.hi = make([][3]float64, 0, k), make([][3]float64, 0, k)
 	}
+	if sv.scale != nil {
+		sub.scale = make([]float64, 0, k)
+	}
 	for i := 0; i < n; i += step {
 		sub.pts = append(sub.pts, sv.pts[i])
+		if sv.scale != nil {
+			sub.scale = append(sub.scale, sv.scale[i])
+		}
 		sub.y = append(sub.y, sv.y[3*i*sv.nrhs:3*(i+1)*sv.nrhs]...)
 		if sv.lo != nil {
 			sub.lo, sub.hi = append(sub.lo, sv.lo[i]), append(sub.hi, sv.hi[i])
@@ -80,7 +87,7 @@ func newSurvey(p *Problem) *survey { return newSurveyIn(p, nil) }
 // newSurveyIn is newSurvey with its data and workspaces lent by scr (nil to allocate).
 func newSurveyIn(p *Problem, scr *scratch) *survey {
 	n := len(p.Points)
-	sv := &survey{pts: p.Points, trav: p.Travel, nrhs: 1, zmin: math.Inf(1), scr: scr}
+	sv := &survey{pts: p.Points, trav: p.Travel, scale: p.Scale, nrhs: 1, zmin: math.Inf(1), scr: scr}
 	if p.isAC() {
 		sv.nrhs = 2
 	}

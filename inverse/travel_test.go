@@ -147,8 +147,10 @@ func TestPathAverageJacobian(t *testing.T) {
 		nrhs     int
 		bg       BackgroundModel
 		weighted bool
-	}{{1, BackgroundUniform, false}, {2, BackgroundUniform, false}, {1, BackgroundGradient, true}, {2, BackgroundNone, true}} {
-		t.Run(fmt.Sprintf("nrhs %d bg %d weighted %v", tc.nrhs, tc.bg, tc.weighted), func(t *testing.T) {
+		scaled   bool // a factor per reading on the sources (Problem.Scale)
+	}{{1, BackgroundUniform, false, false}, {2, BackgroundUniform, false, false}, {1, BackgroundGradient, true, false}, {2, BackgroundNone, true, false},
+		{1, BackgroundUniform, false, true}, {2, BackgroundUniform, false, true}, {1, BackgroundGradient, true, true}} {
+		t.Run(fmt.Sprintf("nrhs %d bg %d weighted %v scaled %v", tc.nrhs, tc.bg, tc.weighted, tc.scaled), func(t *testing.T) {
 			geoms := []lineGeom{
 				sv.geomFrom(seed{e: -0.3, n: 0.1, az: 0.2, z: -0.9}, false, false, 0.05, 0.02),
 				sv.geomFrom(seed{e: 0.4, n: -0.2, az: 0.3, z: -1.2}, false, false, -0.1, 0.02),
@@ -164,6 +166,12 @@ func TestPathAverageJacobian(t *testing.T) {
 				sp.w = make([]float64, sp.m)
 				for i := range sp.w {
 					sp.w[i] = 0.3 + rng.Float64()
+				}
+			}
+			if tc.scaled {
+				sp.scale = make([]float64, len(pts))
+				for i := range sp.scale {
+					sp.scale[i] = 0.7 + 0.6*rng.Float64()
 				}
 			}
 			x, _, _ := sp.pack()

@@ -105,8 +105,13 @@ type separable struct {
 	// thi are workspace for the basis and derivatives evaluated there.
 	ptsLo, ptsHi [][3]float64
 	tlo, thi     []float64
-	at           []float64 // x of the cached state
-	ok           bool
+	// scale is the conductors' factor per reading (Problem.Scale), nil for 1: it
+	// multiplies the rows of every line column and of their derivatives, not the
+	// dipoles' (a magnetised object's field does not follow the current) nor the
+	// background's.
+	scale []float64
+	at    []float64 // x of the cached state
+	ok    bool
 	// lmp is problem's wrapper for the LM engine, kept by a scratch's separable when it
 	// is lent again (its method values are bound to this separable).
 	lmp *lmProblem
@@ -278,6 +283,17 @@ func (sp *separable) fillPhi(phi []float64, rs, cs int, pos []int) error {
 			for row := range sp.m {
 				k := row*rs + pc*cs
 				phi[k] = pathMean(sp.tlo[k], phi[k], sp.thi[k])
+			}
+		}
+	}
+	if sp.scale != nil {
+		for c := range len(sp.geom) {
+			pc := col(c)
+			if pc < 0 {
+				continue
+			}
+			for row := range sp.m {
+				phi[row*rs+pc*cs] *= sp.scale[row/3]
 			}
 		}
 	}
@@ -637,6 +653,7 @@ func (sp *separable) resid(x, r []float64) error {
 // geometry, so the derivative of the average is the average of the derivatives).
 func (sp *separable) dPhiC(dst []float64, np int) {
 	sp.dPhiCAt(dst, np, sp.pts)
+	defer sp.scaleRows(dst[:sp.m*sp.lineParams()*sp.nrhs])
 	if sp.ptsLo == nil {
 		return
 	}
@@ -648,6 +665,31 @@ func (sp *separable) dPhiC(dst []float64, np int) {
 	lo, hi := sp.tlo[:n], sp.thi[:n]
 	for k, v := range dst[:n] {
 		dst[k] = pathMean(lo[k], v, hi[k])
+	}
+}
+
+// lineParams is the number of the lines' free parameters, which come first.
+func (sp *separable) lineParams() int {
+	n := 0
+	for i := range sp.geom {
+		n += sp.geom[i].nfree()
+	}
+	return n
+}
+
+// scaleRows multiplies the rows of the column-major m-row columns in dst by the
+// conductors' factor of their reading (sp.scale), when there is one: dPhiC hands it
+// the lines' derivative columns, whose field the factor scales.
+func (sp *separable) scaleRows(dst []float64) {
+	if sp.scale == nil {
+		return
+	}
+	m := sp.m
+	for c := 0; c+m <= len(dst); c += m {
+		v := dst[c : c+m]
+		for row := range v {
+			v[row] *= sp.scale[row/3]
+		}
 	}
 }
 

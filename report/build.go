@@ -359,6 +359,11 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 				unplace(&f, &g, &st)
 			}
 			d.Groups = append(d.Groups, g)
+			if fixedFailed(&f) {
+				// Not a place along the route (fixedFailed): no
+				// station, so no chainage, and never chainage 0.
+				continue
+			}
 			stations = append(stations, st)
 		}
 		r, err := route.Build(stations, rs)
@@ -441,6 +446,7 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 		trackEnds(r, tracks, rs)
 	}
 	d.SetRoute(r)
+	fixedFailedFindings(&d, fits, r)
 	if d.Route != nil {
 		d.Route.PairNet = pairRoute
 		turnPairs(d.Groups, r, ac)
@@ -1588,4 +1594,60 @@ func dipolePhaseSigma(m, ms [3]float64) float64 {
 		return 0
 	}
 	return ms[big] / math.Abs(m[big]) * 180 / math.Pi
+}
+
+// fixedFailed reports whether f is a failed fit of readings that all lie at
+// one horizontal position (within 1 mm): a fixed sensor's record (a
+// reference magnetometer logged beside the route and read with the survey),
+// not a traverse. Its point is the sensor's, not the conductor's nor a
+// traverse's, so it is no station of the route: placed as one it became
+// the first traverse along the route and set chainage 0 there, moving
+// every chainage by the sensor's distance from the first traverse (5.1 m in
+// review). Its group keeps its problem and has no chainage.
+func fixedFailed(f *Fit) bool {
+	if f.Result != nil || f.Problem == nil || len(f.Problem.Points) == 0 {
+		return false
+	}
+	p0 := f.Problem.Points[0]
+	for _, p := range f.Problem.Points[1:] {
+		if math.Abs(p[0]-p0[0]) > 1e-3 || math.Abs(p[1]-p0[1]) > 1e-3 {
+			return false
+		}
+	}
+	return true
+}
+
+// fixedFailedFindings adds, for each failed fit of a fixed sensor
+// (fixedFailed, no station of the route), the caution a failed station
+// draws from the route, placed at the chainage of the route's station
+// nearest the sensor in plan (0 without a route), and sorts the findings again.
+func fixedFailedFindings(d *Document, fits []Fit, r *route.Route) {
+	added := false
+	for i := range fits {
+		f := &fits[i]
+		if !fixedFailed(f) {
+			continue
+		}
+		at := f.Problem.Points[0]
+		where, ch := "", 0.0
+		if r != nil {
+			best := math.Inf(1)
+			for _, s := range r.Stations {
+				if dist := math.Hypot(s.Point[0]-at[0], s.Point[1]-at[1]); dist < best {
+					best, ch = dist, s.Chainage
+					where = fmt.Sprintf(", %.1f m from %s (chainage %.1f m)", dist, s.Key, s.Chainage)
+				}
+			}
+		}
+		d.Findings = append(d.Findings, Finding{
+			Kind: string(route.KindPoorFit), Severity: SeverityCaution,
+			ChainageFrom: ch, ChainageTo: ch, Position: at, Groups: []string{f.Key},
+			Message: fmt.Sprintf("fit at %s failed: %v; its readings all lie at one place (a fixed sensor's record, not a traverse across the conductor%s), so it is no station of the route: it has no chainage and is left out of the current and cover profile",
+				f.Key, f.Err, where),
+		})
+		added = true
+	}
+	if added {
+		SortFindings(d.Findings)
+	}
 }

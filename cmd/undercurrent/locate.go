@@ -32,6 +32,9 @@ import (
 
 // locateOptions are the settings of one locate run, from flags.
 type locateOptions struct {
+	// curRef is --current-reference and its flags (currentref.go).
+	curRef currentRefFlags
+
 	calibration string
 	base        string   // the base log, or the base logs joined by " + " for messages
 	bases       []string // the base logs given (--base, once or more)
@@ -120,6 +123,7 @@ func (o *locateOptions) setFlags(fs *pflag.FlagSet) {
 	fs.StringVar(&o.calibration, "calibration", "", "apply the sensor calibration in `CAL.json` (from undercurrent calibrate)")
 	fs.Float64Var(&o.mountYaw, "mount-yaw", 0, "the magnetometer is turned on its mount: its field as read is turned `DEG` degrees anticlockwise seen from above (the turn the check against the base record reports, with its sign); the readings are turned back by it about the sensor's vertical axis, after the calibration and before the attitude")
 	fs.StringVar(&o.fieldAxes, "field-axes", "", "what the field columns bx, by, bz hold, `A,B,C` each one of e, n, u (east, north, up) or w, s, d (west, south, down): n,e,d for a field logged north, east, down with positions east, north, up; e,s,d for a sensor mounted upside down; n,e,u for bx and by swapped; the field alone is read so (--frame turns the positions too), after the calibration and before --mount-yaw; for an enu log only")
+	o.curRef.setFlags(fs)
 	fs.StringArrayVar(&o.bases, "base", nil, "subtract the diurnal variation recorded by the base station log `BASE` (any log format, IAGA-2002 too); give it again for a record in several files (daily observatory files across midnight UTC), joined in time order whatever their order here (readings at one time must agree, files that overlap must share readings there, and the level must not step where one file ends and the next begins)")
 	fs.Float64Var(&o.baseHold, "base-hold", 0, "correct survey readings up to `S` seconds before or after the base log with its nearest value held, and interpolate the base across its gaps up to S seconds long, S above or below the default (default for both: five base sample intervals, at least 60 s and at most 300 s; 0: no hold at all, and no reading missing from the base; readings further out, or in a longer gap, are refused, since a held value or a straight line across the gap is no correction)")
 	fs.StringSliceVar(&o.baseColumns, "base-column", nil, "name the base log's columns, `CANON=NAME` as --column does for the survey logs (time=Time,bx=magX,by=magY,bz=magZ); not for an IAGA-2002 base")
@@ -180,6 +184,9 @@ func (o *locateOptions) check(fs *pflag.FlagSet) error {
 	o.baseHoldSet = fs != nil && fs.Changed("base-hold")
 	if o.baseHold < 0 || math.IsNaN(o.baseHold) {
 		return usageErrorf("--base-hold %g: want a time in seconds >= 0", o.baseHold)
+	}
+	if err := o.curRef.check(o); err != nil {
+		return err
 	}
 	if o.baseHoldSet && o.base == "" {
 		return usageErrorf("--base-hold needs --base")
@@ -437,7 +444,10 @@ and the calibration of the walk-through in README.md,
 out/demo/fenwick-lane.csv is the demo's log, and two.csv is written by
 "undercurrent simulate testdata/scenarios/two-conductors.toml -o two.csv";
 your-coil-log.csv and your-coil-response.csv stand for your own coil log
-and response table, which no command here writes.
+and response table, which no command here writes, and your-walk.csv and
+your-rectifier.csv for a DC traction return walked while the load swung
+and the rectifier's current record of that time (columns time and
+current, in A).
 
 Examples:
   undercurrent locate --column lat=GPS_Lat,lon=GPS_Lon,bx=MagX,by=MagY,bz=MagZ --unit bx=uT,by=uT,bz=uT --group-by Line --sensor-height 0.25 your-log.csv -o results
@@ -445,6 +455,7 @@ Examples:
   undercurrent locate --base base.csv --calibration cal.json --group-by group survey.csv -o results
   undercurrent locate --freq 50 --window 0.1 --group-by group --sensor-height 0.3 --min-cover 0.6 --cover-code "UK 11 kV practice" out/demo/fenwick-lane.csv -o results
   undercurrent locate --count 2 --group-by group --json two.csv > two.json
+  undercurrent locate --current-reference your-rectifier.csv --group-by group --reference-z 0 your-walk.csv -o results
   undercurrent locate --freq 50 --coil turns=4000,area=3e-4,mu=120 --unit bx=mV,by=mV,bz=mV --group-by group your-coil-log.csv -o results
   undercurrent locate --freq 512 --coil-response your-coil-response.csv --group-by group your-coil-log.csv -o results`,
 		setFlags: o.setFlags,
@@ -588,6 +599,7 @@ type group struct {
 	points  [][3]float64
 	fields  [][3]float64    // DC
 	stamps  []float64       // DC: each reading's time, s (NaN when the log has none)
+	scale   []float64       // DC: each reading's current over the reference's mean (--current-reference), nil without one
 	phasors [][3]complex128 // AC
 	res     *inverse.Result // fit
 	err     error           // fit failure
@@ -628,7 +640,7 @@ func (g *group) problem(ac bool, noise float64) *inverse.Problem {
 			p.Phasors = turned(g.phasors, g.times, g.ramp.hz, g.ramp.mid)
 		}
 	} else {
-		p.Fields = g.fields
+		p.Fields, p.Scale = g.fields, g.scale
 	}
 	return p
 }
@@ -755,6 +767,9 @@ func runLocate(ctx context.Context, o *locateOptions, logs []string, progress io
 	sv, err := readSurvey(ctx, o, logs)
 	if err != nil {
 		return nil, err
+	}
+	if err := applyCurrentReference(ctx, o, sv); err != nil {
+		return nil, withWarnings(err, sv.alerts, sv.warnings)
 	}
 	if err := fitGroups(ctx, o, sv, progress); err != nil {
 		return nil, err
@@ -891,6 +906,7 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 	// The base correction's warning that the base record's east and north
 	// are not geographic (the reader's is left out: baseOptions).
 	baseFrameNote, baseFrameSaid := "", false
+	baseFieldSaid := false // baseInConductorField's warning given
 	if base != nil {
 		baseFrameNote = calibrate.BaseFrameWarning(base)
 	}
@@ -1173,6 +1189,10 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 				return nil, err
 			}
 			baseNotes = append(baseNotes, baseSummary(path, rep))
+			if w := baseInConductorField(o.base, path, rep); w != "" && !baseFieldSaid {
+				baseFieldSaid = true
+				sv.alerts = append(sv.alerts, w)
+			}
 			if sv.baseRover == nil {
 				lo, hi := finiteSpan(s.Time)
 				sv.baseRover = &ingest.Samples{Time: []float64{lo, hi}, NaiveTime: s.NaiveTime, TimeSaidUTC: s.TimeSaidUTC, Source: s.Source, Meta: s.Meta}
