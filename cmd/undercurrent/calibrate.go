@@ -60,7 +60,11 @@ Methods (give exactly one):
 Logs are any format undercurrent reads (CSV, Arrow, Parquet), with the same
 input flags as the other commands (--column, --unit, --delimiter, ...); only
 bx, by, bz are used, in the sensor's own axes, and a log needs no time
-column. A spin or flip log whose median |B| is far from the Earth's field
+column. The x, y, z axes must form a right-handed set (x × y = z), which
+no spin can check (a mirrored axis fits as well): held level with x to
+magnetic north the sensor reads bx ≈ H (the horizontal field), and turned
+so that y points north (x to the west if z points down, to the east if z
+points up) by reads the same; if not, negate that axis's column in the log. A spin or flip log whose median |B| is far from the Earth's field
 gets a warning (a unit is probably wrong), and one impossibly far (below
 1 pT or above 0.1 T), or 1000 or 100000 times below it (uT or gauss read
 as nT), is refused unless --unit gives the field's unit.
