@@ -170,5 +170,7 @@
 // departs from the law (a resonance, a preamplifier) is given by a measured
 // table of sensitivity and phase against frequency (CoilResponse,
 // ReadCoilResponse), interpolated at each window's frequency and applied by
-// SensitivityWindows.
+// SensitivityWindows. Neither touches the harmonics' phasors
+// (DemodResult.Harmonics): HarmonicsToField converts them, harmonic h at
+// h times the window's frequency.
 package calibrate
