@@ -17,7 +17,10 @@ import (
 )
 
 // Version is the calibration file format version this package writes and
-// the only one Load accepts.
+// the only one Load accepts. It grows by one when a field changes meaning
+// or is removed; an added optional field (sensor, offset_undetermined,
+// logs_taken) does not change it, and files written without that field
+// read as before.
 const Version = 1
 
 // Method names recorded in a calibration file.
@@ -56,8 +59,70 @@ type Calibration struct {
 	// Sensor names the sensor the calibration was made for, when the
 	// calibration log named it (see SensorName); Check compares it with
 	// the sensor of the log a calibration is applied to.
-	Sensor string   `json:"sensor,omitempty"`
-	Notes  []string `json:"notes,omitempty"`
+	Sensor string `json:"sensor,omitempty"`
+	// LogsTaken is the time span of the calibration logs' readings (the
+	// spin, the flip pair or the zero-field log), when they have absolute
+	// times: what the calibration describes is the sensor as it was then,
+	// not when the file was written (Created). Check compares it with the
+	// survey's times. Nil for logs without times, and in files written
+	// before it was recorded.
+	LogsTaken *TimeSpan `json:"logs_taken,omitempty"`
+	Notes     []string  `json:"notes,omitempty"`
+}
+
+// TimeSpan is the span of a log's readings: its first and last reading's
+// time, UTC.
+type TimeSpan struct {
+	First time.Time `json:"first"`
+	Last  time.Time `json:"last"`
+}
+
+// SpanOf returns the span of the finite times in the logs' time columns
+// (seconds, absolute times as Unix seconds, as ingest.Samples.Time holds
+// them), to the second; nil when there is none, or when any is not an
+// absolute time (1e8 s to 1e11 s, 1973 to 5138: a log timed from its own
+// start has no date).
+func SpanOf(times ...[]float64) *TimeSpan {
+	lo, hi := math.Inf(1), math.Inf(-1)
+	for _, ts := range times {
+		for _, t := range ts {
+			if math.IsNaN(t) || math.IsInf(t, 0) {
+				continue
+			}
+			if t < 1e8 || t >= 1e11 {
+				return nil
+			}
+			lo, hi = math.Min(lo, t), math.Max(hi, t)
+		}
+	}
+	if lo > hi {
+		return nil
+	}
+	return &TimeSpan{First: time.Unix(int64(math.Floor(lo)), 0).UTC(), Last: time.Unix(int64(math.Ceil(hi)), 0).UTC()}
+}
+
+// Dates shows the span by its days, "2024-01-10" or "2024-01-10 to
+// 2024-01-11".
+func (p *TimeSpan) Dates() string {
+	a, b := p.First.Format("2006-01-02"), p.Last.Format("2006-01-02")
+	if a == b {
+		return a
+	}
+	return a + " to " + b
+}
+
+// logsWord names what a method's calibration logs were, for messages: "a
+// spin", "a flip pair", "a zero-field log".
+func (c *Calibration) logsWord() string {
+	switch c.Method {
+	case MethodEllipsoid:
+		return "a spin"
+	case MethodFlip:
+		return "a flip pair"
+	case MethodZero:
+		return "a zero-field log"
+	}
+	return "its logs"
 }
 
 // Input records one file a calibration was made from.
@@ -158,7 +223,14 @@ func (c *Calibration) ApplyColumns(bx, by, bz []float64) {
 // ending with what it leaves open (Caveats).
 func (c *Calibration) Summary() string {
 	var b strings.Builder
-	fmt.Fprintf(&b, "%s calibration of %s", c.Method, c.Created.Format("2006-01-02"))
+	// The date is the logs' when they have times: the file's own date
+	// (when calibrate ran) made a spin of 2024 applied to a survey of
+	// 2026 read as a calibration newer than the survey (found in review).
+	if c.LogsTaken != nil {
+		fmt.Fprintf(&b, "%s calibration from %s of %s", c.Method, c.logsWord(), c.LogsTaken.Dates())
+	} else {
+		fmt.Fprintf(&b, "%s calibration of %s", c.Method, c.Created.Format("2006-01-02"))
+	}
 	if len(c.Inputs) > 0 {
 		var names []string
 		for _, in := range c.Inputs {
@@ -168,7 +240,11 @@ func (c *Calibration) Summary() string {
 			}
 			names = append(names, fmt.Sprintf("%s (sha256 %s)", in.File, sum))
 		}
-		fmt.Fprintf(&b, " from %s", strings.Join(names, ", "))
+		word := " from"
+		if c.LogsTaken != nil {
+			word = ", logged in"
+		}
+		fmt.Fprintf(&b, "%s %s", word, strings.Join(names, ", "))
 	}
 	fmt.Fprintf(&b, ": offset (%.1f, %.1f, %.1f) nT", c.Offset[0], c.Offset[1], c.Offset[2])
 	if len(c.Undetermined) > 0 {
@@ -274,6 +350,9 @@ func (c *Calibration) Validate() error {
 	}
 	if r := c.Reference; math.IsNaN(r) || math.IsInf(r, 0) || r < 0 {
 		return fmt.Errorf("reference_nt is %g, want a positive field magnitude in nT (or no reference_nt)", r)
+	}
+	if p := c.LogsTaken; p != nil && (p.First.IsZero() || p.Last.IsZero() || p.Last.Before(p.First)) {
+		return fmt.Errorf("logs_taken is %s to %s: want the first and last reading's times, the first not after the last", p.First.Format(time.RFC3339), p.Last.Format(time.RFC3339))
 	}
 	if c.OffsetSigma != nil {
 		for k, v := range c.OffsetSigma {

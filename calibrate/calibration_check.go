@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"strings"
+	"time"
 
 	"undercurrent/ingest"
 )
@@ -21,6 +22,23 @@ import (
 // 2% leaves room for the survey's own anomalies and for a log made some
 // hundreds of kilometres from where the calibration was made.
 const MaxReferenceMismatch = 0.02
+
+// MaxCalibrationAge is how long after its logs were taken a calibration
+// is applied without a warning: a year. A rule of thumb, not a measured
+// drift: a fluxgate's offsets drift with age and temperature cycling and
+// jump when the sensor is knocked or its mount or electronics are changed,
+// none of which a survey log shows by itself, and sensors are commonly
+// recalibrated at least once a year. The check that does see a wrong
+// calibration, the corrected field against the reference or a base
+// station, stays the better guide; this one catches a stale file.
+const MaxCalibrationAge = 365 * 24 * time.Hour
+
+// MaxCalibrationLead is how long before a calibration's logs a survey may
+// end without a warning: a day, so that a spin made at the end of the
+// survey day, or the next morning, passes. A survey days before the
+// calibration is either described by a later state of the sensor or, more
+// often, given another job's file.
+const MaxCalibrationLead = 24 * time.Hour
 
 // MinEarthField and MaxEarthField bound the main field's magnitude at the
 // Earth's surface, nT: about 22 000 nT in the South Atlantic to about
@@ -59,6 +77,10 @@ func SensorName(s *ingest.Samples) string {
 //
 //   - When c names its sensor (Calibration.Sensor) and s names one too
 //     (SensorName), they must be the same.
+//   - When c records when its logs were taken (LogsTaken) and s has
+//     absolute times, s must not end more than MaxCalibrationLead
+//     before them nor more than MaxCalibrationAge after them
+//     (CheckTaken).
 //   - When c has a reference field magnitude (reference_nt, written by the
 //     ellipsoid method), the median |B| of s after the correction must be
 //     within MaxReferenceMismatch of it. The median, not the mean, so that
@@ -73,6 +95,11 @@ func (c *Calibration) Check(s *ingest.Samples) []string {
 	var warns []string
 	if got := SensorName(s); c.Sensor != "" && got != "" && got != c.Sensor {
 		warns = append(warns, fmt.Sprintf("%s was taken by sensor %q, but the calibration was made for sensor %q: a calibration belongs to one sensor", source(s), got, c.Sensor))
+	}
+	if span := SpanOf(s.Time); span != nil {
+		for _, w := range c.CheckTaken(span.First, span.Last) {
+			warns = append(warns, source(s)+": "+w)
+		}
 	}
 	if checkField(s) != nil {
 		return warns
@@ -123,4 +150,41 @@ func finite3(r [3]float64) bool {
 		}
 	}
 	return true
+}
+
+// CheckTaken compares the times of readings corrected with c, first to
+// last, with the time c's logs were taken (LogsTaken), and returns a
+// warning when they end more than MaxCalibrationLead before the logs
+// begin, or more than MaxCalibrationAge after the logs end; none when c
+// records no
+// times (nil c, logs without times, a file written before they were
+// recorded) or first or last is the zero time.
+func (c *Calibration) CheckTaken(first, last time.Time) []string {
+	if c == nil || c.LogsTaken == nil || first.IsZero() || last.IsZero() {
+		return nil
+	}
+	p := c.LogsTaken
+	var warns []string
+	if lead := p.First.Sub(last); lead > MaxCalibrationLead {
+		warns = append(warns, fmt.Sprintf("the readings end %s, %s before the calibration's logs (%s of %s): a calibration describes the sensor as it was when its logs were taken, and one made after the survey holds for it only if nothing changed the sensor in between (a knock, a new mount or battery); check that it is this sensor's calibration for this job",
+			last.UTC().Format("2006-01-02"), days(lead), c.logsWord(), p.Dates()))
+	}
+	if age := last.Sub(p.Last); age > MaxCalibrationAge {
+		warns = append(warns, fmt.Sprintf("the readings end %s, %s after the calibration's logs (%s of %s), more than the %s after which a sensor is usually calibrated again (a rule of thumb: offsets drift, and a knock moves them): calibrate the sensor again, and compare the corrected field with a base station meanwhile",
+			last.UTC().Format("2006-01-02"), days(age), c.logsWord(), p.Dates(), days(MaxCalibrationAge)))
+	}
+	return warns
+}
+
+// days shows a duration of a day or more in days ("820 days"), a shorter
+// one in hours.
+func days(d time.Duration) string {
+	if d < 24*time.Hour {
+		return fmt.Sprintf("%.0f hours", d.Hours())
+	}
+	n := int(d.Hours() / 24)
+	if n == 1 {
+		return "1 day"
+	}
+	return fmt.Sprintf("%d days", n)
 }

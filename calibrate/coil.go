@@ -67,7 +67,9 @@ func CoilPhasor(v complex128, coil Coil, freq float64) (complex128, error) {
 // CoilWindows converts demodulated windows of coil voltages (B and Sigma
 // in volts, as Demodulate returns them when the log's field columns hold
 // coil outputs) to field in nT in place, each at its own frequency. A
-// window the conversion rejects leaves the windows unchanged.
+// window the conversion rejects leaves the windows unchanged. The
+// harmonics' phasors (DemodResult.Harmonics) are not in the windows and
+// stay in volts: HarmonicsToField converts them, each at its own frequency.
 func CoilWindows(ws []Window, coil Coil) error {
 	for i, w := range ws {
 		if _, err := coil.gain(w.Freq); err != nil {
@@ -424,7 +426,8 @@ func LoadCoilResponse(path string) (*CoilResponse, error) {
 // B = V / H and Sigma = Sigma_V / |H| (H = s.Sensitivity(freq), V per T).
 // A window the sensitivity rejects (a frequency outside a table) leaves the
 // windows unchanged. With the ideal Coil it agrees with CoilWindows. A nil
-// s is an error.
+// s is an error. The harmonics' phasors (DemodResult.Harmonics) stay in
+// volts: HarmonicsToField converts them, each at its own frequency.
 func SensitivityWindows(ws []Window, s CoilSensitivity) error {
 	if s == nil {
 		return errors.New("calibrate: coil: no sensitivity (nil)")
@@ -478,4 +481,66 @@ func sensitivityLogSlope(s CoilSensitivity, freq float64) complex128 {
 		hhi, hi = h0, freq
 	}
 	return (hhi - hlo) / complex(2*math.Pi*(hi-lo), 0) / h0
+}
+
+// HarmonicsToField converts the harmonics' phasors of a demodulation of
+// coil voltages (res.Harmonics, volts, which CoilWindows and
+// SensitivityWindows leave alone) to field phasors in nT in place:
+// harmonic h of window i at its own frequency, h times that window's Freq,
+//
+//	B = V / H(h f),  H = s.Sensitivity(h f), V per T,
+//
+// so that a measured response (*CoilResponse) is read at the harmonic's
+// frequency, not at the fundamental's; the ideal Coil's H grows with the
+// frequency, and a harmonic converted at the fundamental's frequency would
+// read h times too strong and, with a response whose phase changes with
+// frequency, turned. harmonics lists the harmonic numbers fitted, in the
+// order of DemodSettings.Harmonics. The motional term that CoilWindows
+// removes from the fundamental (removeMotion) is not removed: no slope is
+// fitted for a harmonic, and the term, about v/(h ω r) of the field, is h
+// times smaller there. A nil res or s, a res whose Harmonics do not match
+// its windows and harmonics, a harmonic below 2 or a frequency the
+// sensitivity rejects (outside a table) is an error, and leaves res
+// unchanged.
+func HarmonicsToField(res *DemodResult, harmonics []int, s CoilSensitivity) error {
+	if res == nil || s == nil {
+		return errors.New("calibrate: coil: no demodulation or no sensitivity (nil)")
+	}
+	if len(res.Harmonics) == 0 {
+		return nil
+	}
+	if len(res.Harmonics) != len(res.Windows) {
+		return fmt.Errorf("calibrate: coil: %d windows of harmonics for %d windows", len(res.Harmonics), len(res.Windows))
+	}
+	for _, h := range harmonics {
+		if h < 2 {
+			return fmt.Errorf("calibrate: coil: harmonic %d: want 2 or more (the fundamental is in the windows)", h)
+		}
+	}
+	inv := make([][]complex128, len(res.Harmonics))
+	for i, hs := range res.Harmonics {
+		if len(hs) != len(harmonics) {
+			return fmt.Errorf("calibrate: coil: window %d holds %d harmonics, but %d harmonics (%v) were named", i, len(hs), len(harmonics), harmonics)
+		}
+		inv[i] = make([]complex128, len(hs))
+		for j, h := range harmonics {
+			f := float64(h) * res.Windows[i].Freq
+			g, err := s.Sensitivity(f)
+			if err != nil {
+				return fmt.Errorf("calibrate: coil: window %d, harmonic %d (%s Hz): %w", i, h, FreqText(f), err)
+			}
+			if g == 0 || cmplx.IsNaN(g) || cmplx.IsInf(g) {
+				return fmt.Errorf("calibrate: coil: window %d, harmonic %d: sensitivity %v V/T at %g Hz", i, h, g, f)
+			}
+			inv[i][j] = 1e9 / g
+		}
+	}
+	for i, hs := range res.Harmonics {
+		for j := range hs {
+			for k := 0; k < 3; k++ {
+				hs[j][k] *= inv[i][j]
+			}
+		}
+	}
+	return nil
 }

@@ -15,7 +15,9 @@ import (
 type CoverageSettings struct {
 	// MinEigen is the smallest acceptable eigenvalue of the scatter matrix
 	// of unit field directions, mean(u uᵀ). Even coverage gives 1/3 for all
-	// three; readings turned about one axis only give one near 0.
+	// three; readings that never bring the field near some direction of
+	// the sensor (a turn about one axis, or whole turns about two) give
+	// one near 0.
 	// Zero means 0.05.
 	MinEigen float64
 	// MinCap is the fraction of readings in each of the six caps of
@@ -167,7 +169,7 @@ func CheckCoverage(readings [][3]float64, set *CoverageSettings) (*Coverage, err
 	var problems []string
 	if cov.Eigen[0] < cs.MinEigen {
 		problems = append(problems, fmt.Sprintf(
-			"the readings lie close to a plane (smallest direction-scatter eigenvalue %.3f, want at least %.3f; even coverage gives 0.333): the sensor was turned about one axis only; also point its axis near (%.2f, %.2f, %.2f) along and against the field",
+			"the readings lie close to a plane (smallest direction-scatter eigenvalue %.3f, want at least %.3f; even coverage gives 0.333): the field never came near the sensor's direction (%.2f, %.2f, %.2f) nor its opposite; also turn the sensor so that this direction points along and then against the field",
 			cov.Eigen[0], cs.MinEigen, cov.Weakest[0], cov.Weakest[1], cov.Weakest[2]))
 	}
 	var missing []string

@@ -38,8 +38,9 @@
 // CheckCoverage looks at unit directions of the readings about a rough
 // centre (trimmed of each axis's extreme 5%, so that one glitch does not
 // move it): the eigenvalues of their scatter matrix (each 1/3 for even
-// coverage; near zero when the sensor was turned about one axis only,
-// refused) and the fraction of readings in each of the six caps around ±x,
+// coverage; near zero when the field never came near some direction of
+// the sensor, as after a turn about one axis or whole turns about two:
+// refused, naming that direction) and the fraction of readings in each of the six caps around ±x,
 // ±y, ±z (a sparse cap is only a warning). What decides is whether the fit
 // determines every parameter: FitEllipsoid refuses a spin whose offset or
 // matrix terms it knows worse than 0.2% of the field (a spin turned about
@@ -169,5 +170,7 @@
 // departs from the law (a resonance, a preamplifier) is given by a measured
 // table of sensitivity and phase against frequency (CoilResponse,
 // ReadCoilResponse), interpolated at each window's frequency and applied by
-// SensitivityWindows.
+// SensitivityWindows. Neither touches the harmonics' phasors
+// (DemodResult.Harmonics): HarmonicsToField converts them, harmonic h at
+// h times the window's frequency.
 package calibrate

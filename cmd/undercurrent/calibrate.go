@@ -29,8 +29,12 @@ func init() {
 		summary: "make a sensor calibration file (offset and soft-iron matrix) from a calibration log",
 		long: `Calibrate works out the sensor's own errors from a log taken for the purpose
 and writes them to a versioned JSON calibration file, which other commands
-apply with --calibration CAL.json. The file records the method, the date, the
-input files with their SHA-256 checksums and the residual statistics.
+apply with --calibration CAL.json. The file records the method, the date it
+was made, when the logs were taken (their first and last reading, for logs
+with times), the input files with their SHA-256 checksums and the residual
+statistics. locate warns when a survey ends more than a day before the logs
+were taken, or more than a year after them (a rule of thumb: sensors are
+commonly recalibrated yearly, and a knock moves the offsets).
 
 Methods (give exactly one):
   --spin FILE      turn the sensor through as many orientations as possible in
@@ -60,7 +64,11 @@ Methods (give exactly one):
 Logs are any format undercurrent reads (CSV, Arrow, Parquet), with the same
 input flags as the other commands (--column, --unit, --delimiter, ...); only
 bx, by, bz are used, in the sensor's own axes, and a log needs no time
-column. A spin or flip log whose median |B| is far from the Earth's field
+column. The x, y, z axes must form a right-handed set (x × y = z), which
+no spin can check (a mirrored axis fits as well): held level with x to
+magnetic north the sensor reads bx ≈ H (the horizontal field), and turned
+so that y points north (x to the west if z points down, to the east if z
+points up) by reads the same; if not, negate that axis's column in the log. A spin or flip log whose median |B| is far from the Earth's field
 gets a warning (a unit is probably wrong), and one impossibly far (below
 1 pT or above 0.1 T), or 1000 or 100000 times below it (uT or gauss read
 as nT), is refused unless --unit gives the field's unit.
@@ -182,13 +190,14 @@ Examples:
 			// sensor (Calibration.Check).
 			var sensor string
 			var span float64             // the time the spin log spans, s (spinDriftNote)
+			var logTimes [][]float64     // the logs' times, for Calibration.LogsTaken
 			var where func(j int) string // names reading j of the last log read
 			read := func(role, path string) ([][3]float64, calibrate.Input, error) {
 				if err := rf.checkIAGA("--"+role, path); err != nil {
 					return nil, calibrate.Input{}, err
 				}
 				// A zero-field log is near zero by design: no unit check.
-				r, in, w, err := readCalibrationLog(ctx, &rf, opts, role, path, role != "zero", &sensor, &span, stderr)
+				r, in, w, err := readCalibrationLog(ctx, &rf, opts, role, path, role != "zero", &sensor, &span, &logTimes, stderr)
 				where = w
 				return r, in, err
 			}
@@ -270,6 +279,9 @@ Examples:
 				return err
 			}
 			cal.Sensor = sensor
+			// When the logs were taken, for locate's check of the survey's
+			// date against it (Calibration.Check) and the summary.
+			cal.LogsTaken = calibrate.SpanOf(logTimes...)
 			if out != "" {
 				if err := cal.Save(out); err != nil {
 					return err
@@ -345,8 +357,9 @@ func inFile(path string, err error) error {
 // --drop-missing dropped, and the header and comment lines), or else its
 // data row.
 // readCalibrationLog reads a calibration log; span, when not nil, gets
-// the time the log spans in seconds (0 without a time column).
-func readCalibrationLog(ctx context.Context, rf *readFlags, opts []ingest.Option, role, path string, checkUnits bool, sensor *string, span *float64, stderr io.Writer) (r [][3]float64, in calibrate.Input, where func(j int) string, err error) {
+// the time the log spans in seconds (0 without a time column), and times,
+// when not nil, gets the log's time column appended (none without one).
+func readCalibrationLog(ctx context.Context, rf *readFlags, opts []ingest.Option, role, path string, checkUnits bool, sensor *string, span *float64, logTimes *[][]float64, stderr io.Writer) (r [][3]float64, in calibrate.Input, where func(j int) string, err error) {
 	s, rows, warns, err := rf.readLogRows(ctx, path, opts, checkUnits)
 	if err != nil {
 		return nil, calibrate.Input{}, nil, err
@@ -380,6 +393,9 @@ func readCalibrationLog(ctx context.Context, rf *readFlags, opts []ingest.Option
 	}
 	in, err = calibrate.FileInput(role, path, len(r))
 	times := s.Time
+	if logTimes != nil && !s.NoTime {
+		*logTimes = append(*logTimes, times)
+	}
 	if span != nil {
 		lo, hi := math.Inf(1), math.Inf(-1)
 		for _, t := range times {
@@ -498,6 +514,11 @@ func printCalibration(w io.Writer, cal *calibrate.Calibration, asJSON bool) erro
 		return enc.Encode(cal)
 	}
 	fmt.Fprintf(w, "method      %s (file version %d, made %s)\n", cal.Method, cal.Version, cal.Created.Format("2006-01-02 15:04:05Z"))
+	if p := cal.LogsTaken; p != nil {
+		fmt.Fprintf(w, "logs taken  %s to %s\n", p.First.Format("2006-01-02 15:04:05Z"), p.Last.Format("2006-01-02 15:04:05Z"))
+	} else {
+		fmt.Fprintf(w, "logs taken  not recorded (logs without times, or a file from before they were recorded)\n")
+	}
 	if cal.Sensor != "" {
 		fmt.Fprintf(w, "sensor      %s\n", cal.Sensor)
 	}

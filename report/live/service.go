@@ -178,10 +178,20 @@ func New(cfg Config) (*Service, error) {
 	if s.httpAddr == "" {
 		s.httpAddr = s.site.Service.HTTP
 	}
-	// Fail at start, not at the first window, on a bad calibration file.
+	// Fail at start, not at the first window, on a bad calibration file,
+	// and warn of one whose logs were taken over a year ago (or after
+	// now): the live readings are taken now (Calibration.CheckTaken).
+	now := time.Now()
 	for i := range s.site.Assets {
-		if _, err := newProcessor(&s.site.Assets[i], s.id); err != nil {
+		a := &s.site.Assets[i]
+		p, err := newProcessor(a, s.id)
+		if err != nil {
 			return nil, err
+		}
+		for j, c := range p.cals {
+			for _, w := range c.CheckTaken(now, now) {
+				s.log.Warn("calibration out of date", "asset", a.Name, "sensor", a.Sensors[j].Name, "calibration", a.Sensors[j].Calibration, "warning", w)
+			}
 		}
 	}
 	return s, nil
