@@ -567,6 +567,12 @@ type Route struct {
 	StationScatterCurrent *float64 `json:"station_scatter_current_a,omitempty"`
 	StationScatterDepth   *float64 `json:"station_scatter_depth_m,omitempty"`
 	StationScatterTriples int      `json:"station_scatter_triples,omitempty"`
+	// SmallestStepSeen is about the smallest change of current between
+	// two successive stations that the step test reports at the route's
+	// between-station scatter (route.Route.SmallestStep), A: a route
+	// that reports no step does not rule out a loss smaller than that.
+	// Nil when the stations scatter no more than their fits' sigmas say.
+	SmallestStepSeen *float64 `json:"smallest_step_seen_a,omitempty"`
 	// PairNet is true when conductor 1 is a go-and-return pair (two
 	// cores side by side carrying opposite currents, resolved or not):
 	// a station where the pair was found gives its centre and depth,

@@ -111,6 +111,10 @@ func (d *Document) routeOf(r *route.Route) *Route {
 	ref := d.DepthReference
 	groundKnown := ref.Kind == DepthBelowGround || ref.SensorHeight > 0
 	out := &Route{Length: r.Length, Stations: make([]Station, len(r.Stations))}
+	if r.SmallestStep > 0 {
+		v := r.SmallestStep
+		out.SmallestStepSeen = &v
+	}
 	for i, p := range r.Stations {
 		s := Station{
 			Key:          p.Key,

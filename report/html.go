@@ -1090,6 +1090,13 @@ func (v *view) summarise() {
 			}
 			v.Scatter = fmt.Sprintf("Realistic spread: stations scatter about the line through their neighbours by %s A in current (%s of the median current) and %s m in depth, one standard deviation of a single station (robust, from %d runs of three successive stations, leaving out current steps and current anomalies)%s; expect a single station's current and depth to be off by up to about that much (the scatter also holds any real change that is not steady over two intervals, such as a bend or a sudden change of depth).",
 				sigText(*r.StationScatterCurrent), pct(*r.StationScatterCurrent, medianAbsCurrent(r)), sigText(*r.StationScatterDepth), r.StationScatterTriples, vsFits)
+			if r.SmallestStepSeen != nil {
+				// How large a loss that scatter hides (found in
+				// review: a real 40% loss under a current varying in
+				// time went unreported, and nothing said so).
+				v.Scatter += fmt.Sprintf(" At this scatter a change of current between two successive stations smaller than about %s A (%s of the median current) is not reported as a step: no step reported does not rule out a loss that size.",
+					sigText(*r.SmallestStepSeen), pct(*r.SmallestStepSeen, medianAbsCurrent(r)))
+			}
 			v.Headline = append(v.Headline, v.Scatter)
 		}
 		for _, t := range d.Conductors {

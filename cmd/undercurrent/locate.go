@@ -381,7 +381,10 @@ any) is put in time order, with a warning.
 Each survey log's median |B| is checked against the Earth's field (about
 22000-67000 nT at the surface, in every raw log): outside 15000-80000 nT
 the run warns that the field's unit is probably wrong (fine for a log with
-the Earth's field removed); impossibly far (below 1 pT or above 0.1 T, as
+the Earth's field removed), unless, for a DC log, the fitted conductors'
+field accounts for it (beside a rail of a thousand amperes: the fitted
+readings with that field taken off have a median inside the band);
+impossibly far (below 1 pT or above 0.1 T, as
 an Earth field in tesla read as nT) it refuses, unless --unit gives the
 field's unit. A DC log whose |B| is as steady as the Earth's field but
 whose median only a unit's factor brings into the band (uT, G, mT or pT
@@ -774,6 +777,9 @@ func runLocate(ctx context.Context, o *locateOptions, logs []string, progress io
 	if err := fitGroups(ctx, o, sv, progress); err != nil {
 		return nil, err
 	}
+	// A median |B| above the Earth's band that the fitted conductors'
+	// field accounts for is not a unit's fault (bandfield.go).
+	explainedBand(sv)
 	// A base record paired at the wrong time (baselag.go).
 	w, err := baseLagCheck(o, sv)
 	if err != nil {

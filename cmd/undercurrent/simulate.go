@@ -52,7 +52,7 @@ Examples:
 		setFlags: func(fs *pflag.FlagSet) {
 			fs.StringVarP(&out, "output", "o", "", "write the log to `LOG` (.csv, .arrow, .arrows or .parquet)")
 			fs.StringVar(&baseOut, "base-log", "", "also write the scenario's base-station log to `FILE`")
-			fs.StringVar(&truthOut, "truth", "", "also write where each survey line crosses each conductor (position, depth, current) to CSV `FILE` (.csv or .txt), to compare with locate's results")
+			fs.StringVar(&truthOut, "truth", "", "also write where each survey line crosses each conductor (position, depth, and the current when the sensor passed over it, after any change_at_s; time_s gives when) to CSV `FILE` (.csv or .txt), to compare with locate's results")
 			fs.Int64Var(&seed, "seed", 0, "override the scenario's random seed")
 			fs.BoolVar(&force, "force", false, "replace LOG, and the --base-log and --truth files, if they exist (without it an existing file is refused, so that a mistyped name cannot replace a log)")
 		},
@@ -234,15 +234,17 @@ func plain(v float64) string {
 }
 
 // writeTruth writes the scenario's crossings to w as CSV: what locate
-// should find under each survey line.
+// should find under each survey line. current_a is the current when the
+// sensor passes over the crossing (time_s, s after the first reading, the
+// clock of change_at_s): after a change of current, the current after it.
 func writeTruth(w io.Writer, sc *simulate.Scenario) error {
 	bw := bufio.NewWriter(w)
-	fmt.Fprintln(bw, "line,conductor,name,east_m,north_m,up_m,depth_m,dir_east,dir_north,dir_up,current_a,frequency_hz,phase_deg,along_m")
+	fmt.Fprintln(bw, "line,conductor,name,east_m,north_m,up_m,depth_m,dir_east,dir_north,dir_up,current_a,frequency_hz,phase_deg,along_m,time_s")
 	for _, c := range sc.Crossings() {
 		name := strings.NewReplacer(",", " ", "\n", " ", "\"", "'").Replace(sc.Conductors[c.Conductor].Name)
-		fmt.Fprintf(bw, "%s,%d,%s,%.4f,%.4f,%.4f,%.4f,%.6f,%.6f,%.6f,%g,%g,%g,%.4f\n",
+		fmt.Fprintf(bw, "%s,%d,%s,%.4f,%.4f,%.4f,%.4f,%.6f,%.6f,%.6f,%g,%g,%g,%.4f,%.3f\n",
 			c.Line, c.Conductor+1, name, c.Point[0], c.Point[1], c.Point[2], c.Depth,
-			c.Dir[0], c.Dir[1], c.Dir[2], c.Current, c.Frequency, c.Phase, c.Along)
+			c.Dir[0], c.Dir[1], c.Dir[2], c.Current, c.Frequency, c.Phase, c.Along, c.Time)
 	}
 	return bw.Flush()
 }

@@ -85,6 +85,12 @@ type Route struct {
 	// the uncertainty of its own estimate on a short route (fewer than 16
 	// usable stations; see scatter.go), 1 when it was not.
 	ScatterWidening float64
+	// SmallestStep is, when ModelScatter is not zero, about the smallest
+	// change of current between two successive stations that the step
+	// test reports at that scatter (A; see smallestStep): a loss smaller
+	// than that is not ruled out by a route that reports none. Zero when
+	// ModelScatter is zero.
+	SmallestStep float64
 	// FirstWalk, when the route was walked more than once and the
 	// walks' currents differ by one ratio (or one change) per walk, or
 	// by one change per walk on one side of a point (a step whose size
@@ -163,6 +169,7 @@ func Build(stations []Station, set *Settings) (*Route, error) {
 	r.Findings = append(r.Findings, wf...)
 	r.ModelScatter, r.ScatterWidening = modelScatter(outsideBends(one, set), set)
 	st, notes := steps(one, set, r.ModelScatter, r.ScatterWidening)
+	r.SmallestStep = smallestStep(one, set, r.ModelScatter)
 	// AC: changes of phase sized as phasors (phasorstep.go).
 	st = phasorSteps(one, st, set)
 	addRepeats(st, one)

@@ -13,9 +13,17 @@ type Crossing struct {
 	Point [3]float64
 	// Dir is the unit direction of current flow there.
 	Dir [3]float64
-	// Current is the current there, A (RMS for AC), along Dir; before any
-	// change of current (change_at_s).
+	// Current is the current there, A (RMS for AC), along Dir, at Time:
+	// current_after_a once a change of current (change_at_s) has happened
+	// by then, current_a (or the segment's currents_a) before it.
 	Current float64
+	// Time is when the sensor passes over the crossing, s after the first
+	// reading (the clock of change_at_s): the time of the survey line's
+	// first reading plus Along over the walking speed. The readings on
+	// either side of the crossing are taken from half a sample interval
+	// before to after it, so a change of current within the line's walk
+	// leaves the readings before the change at the old current.
+	Time float64
 	// Frequency is the AC frequency, Hz (0 for DC), and Phase the phase at
 	// Unix time zero, degrees.
 	Frequency, Phase float64
@@ -34,10 +42,12 @@ type Crossing struct {
 // sensor).
 func (sc *Scenario) Crossings() []Crossing {
 	var out []Crossing
-	for _, l := range sc.lines {
+	spans, _ := sc.spans()
+	for li, l := range sc.lines {
 		if l.Length() == 0 {
 			continue
 		}
+		t0 := spans[li].t0 - sc.start
 		for ci, c := range sc.Conductors {
 			switch c.Kind {
 			case "line":
@@ -50,7 +60,7 @@ func (sc *Scenario) Crossings() []Crossing {
 					continue
 				}
 				pt := [3]float64{p[0] + t*u[0], p[1] + t*u[1], p[2] + t*u[2]}
-				out = append(out, crossing(l, ci, c, s, pt, u, c.Current))
+				out = append(out, sc.crossing(l, t0, ci, c, s, pt, u, c.Current))
 			case "polyline":
 				cur := c.segmentCurrents()
 				const eps = 1e-9
@@ -70,7 +80,7 @@ func (sc *Scenario) Crossings() []Crossing {
 					}
 					n := norm(d)
 					u := [3]float64{d[0] / n, d[1] / n, d[2] / n}
-					out = append(out, crossing(l, ci, c, s, pt, u, cur[j]))
+					out = append(out, sc.crossing(l, t0, ci, c, s, pt, u, cur[j]))
 					prev = &pt
 				}
 			}
@@ -79,7 +89,18 @@ func (sc *Scenario) Crossings() []Crossing {
 	return out
 }
 
-func crossing(l Line, ci int, c Conductor, s float64, pt, u [3]float64, current float64) Crossing {
+// crossing is the crossing of conductor ci (c) by survey line l, whose
+// first reading is at t0 s after the survey's first, at fraction s of
+// l's length; current is the conductor's current there before any change
+// of current.
+func (sc *Scenario) crossing(l Line, t0 float64, ci int, c Conductor, s float64, pt, u [3]float64, current float64) Crossing {
+	along := s * l.Length()
+	at := t0 + along/sc.speed()
+	// As the readings take it (source.at): the current after the change
+	// from change_at_s on.
+	if c.ChangeAt != nil && at >= *c.ChangeAt {
+		current = *c.CurrentAfter
+	}
 	return Crossing{
 		Line:      l.Key,
 		Conductor: ci,
@@ -89,7 +110,8 @@ func crossing(l Line, ci int, c Conductor, s float64, pt, u [3]float64, current 
 		Frequency: c.Frequency,
 		Phase:     c.Phase,
 		Depth:     -pt[2],
-		Along:     s * l.Length(),
+		Along:     along,
+		Time:      at,
 	}
 }
 

@@ -51,3 +51,87 @@ current_a = 10
 		}
 	}
 }
+
+// TestCrossingsCurrentAfterChange: the truth file's current is the one
+// each traverse carried when it was walked over the conductor, not the
+// current before a change (found in review: a scenario stepping from 150
+// to 105 A at 100 s listed 150 A for every traverse). Invented: a return
+// cable 0.9 m down at a tram depot, 15 traverses of 10 m at 0.5 m/s with
+// 10 s turns, the current stepping at 100 s, during the fourth traverse.
+// Each crossing's current is checked against the log itself: the reading
+// over the cable, with the Earth's field taken off, must be the field of
+// an infinite straight line, mu0 I / (2 pi r) (the Biot-Savart law for a
+// long straight conductor), at r = 0.9 m of cover plus 0.3 m of sensor
+// height, for the truth's current.
+func TestCrossingsCurrentAfterChange(t *testing.T) {
+	sc := parse(t, `
+start = "2026-03-02T10:00:00Z"
+[earth]
+field_nt = [-150.0, 19200.0, -45100.0]
+[sensor]
+height_m = 0.3
+noise_nt = 0
+[survey]
+count = 15
+spacing_m = 5.0
+first_at_m = 2.0
+length_m = 10.0
+speed_m_s = 0.5
+sample_spacing_m = 0.1
+turn_s = 10.0
+[[conductor]]
+kind = "line"
+point = [0.0, 0.0, -0.9]
+direction = [1.0, 0.0, 0.0]
+current_a = 150.0
+change_at_s = 100.0
+current_after_a = 105.0
+`)
+	cs := sc.Crossings()
+	if len(cs) != 15 {
+		t.Fatalf("%d crossings, want 15", len(cs))
+	}
+	// The walk: 20 s per traverse and 10 s turns, so T04 runs from 90 to
+	// 110 s and crosses the cable at its middle, 100 s: the change.
+	n, get := simulate(t, sc)
+	earth := [3]float64{-150, 19200, -45100}
+	const mu0 = 4e-7 * math.Pi
+	n105, compared := 0, 0
+	for _, c := range cs {
+		want := 150.0
+		if c.Time >= 100 {
+			want = 105
+			n105++
+		}
+		if c.Current != want {
+			t.Errorf("%s crossed at %.2f s: current %g A, want %g", c.Line, c.Time, c.Current, want)
+		}
+		// The reading nearest the crossing in time.
+		best, bestDT := -1, math.Inf(1)
+		for i := range n {
+			tm, _, _, g := get(i)
+			if dt := math.Abs(tm - sc.StartTime() - c.Time); g == c.Line && dt < bestDT {
+				best, bestDT = i, dt
+			}
+		}
+		_, r, b, _ := get(best)
+		if math.Abs(r[1]) > 1e-6 {
+			// Only a reading right over the cable is compared.
+			continue
+		}
+		compared++
+		d := [3]float64{b[0] - earth[0], b[1] - earth[1], b[2] - earth[2]}
+		got := math.Hypot(math.Hypot(d[0], d[1]), d[2]) * 1e-9 * 2 * math.Pi * 1.2 / mu0
+		if math.Abs(got-c.Current) > 1e-6*c.Current {
+			t.Errorf("%s: the reading over the cable at %.2f s carries %.6f A, the truth says %g", c.Line, c.Time, got, c.Current)
+		}
+	}
+	// T04 crosses at 100 s exactly, the change: it and the 11 after it
+	// carried 105 A.
+	if n105 != 12 {
+		t.Errorf("%d crossings at 105 A, want 12", n105)
+	}
+	if compared != len(cs) {
+		t.Errorf("%d of %d crossings had a reading right over the cable", compared, len(cs))
+	}
+}
