@@ -81,9 +81,16 @@ type view struct {
 	DepthCaption string
 	// InputsNA is true when an input has no readings to count.
 	InputsNA bool
-	Counts   string
-	Findings []findingRow
-	Cautions []string
+	// Counts gives the findings by severity, and MostPressing names the
+	// most pressing of them (kind, place, value): both lead the summary,
+	// so that a phone's first screen says there are warnings and which
+	// matters most. They came last in the summary, after the four-decimal
+	// figures and the realistic spread, and the demo's first warning
+	// started 2.1 phone screens down (found in review).
+	Counts       string
+	MostPressing string
+	Findings     []findingRow
+	Cautions     []string
 	// CautionShort is the one-line caution printed on every page.
 	CautionShort string
 	// GroupCols is the number of columns of the table of every group.
@@ -857,6 +864,32 @@ func fitNotes(d *Document) []string {
 	return out
 }
 
+// mostPressing names the first of the most severe findings, as the
+// findings table numbers it: its severity, kind, place (the chainage, or
+// where there is no route its east and north) and first value. Empty
+// when there are no findings, or only notes.
+func (v *view) mostPressing() string {
+	best := -1
+	for i := range v.D.Findings {
+		if best < 0 || severityRank(v.D.Findings[i].Severity) < severityRank(v.D.Findings[best].Severity) {
+			best = i
+		}
+	}
+	if best < 0 || v.D.Findings[best].Severity == SeverityInfo {
+		return ""
+	}
+	f := v.D.Findings[best]
+	place := en(f.Position)
+	if v.D.Route != nil {
+		place = strings.SplitN(v.where(f), " · ", 2)[0]
+	}
+	s := fmt.Sprintf("Most pressing: finding %d, a %s, %s at %s", best+1, f.Severity, kindLabel(f.Kind), place)
+	if len(f.Values) > 0 {
+		s += ": " + valueText(f.Values[0])
+	}
+	return s + "."
+}
+
 // en formats a local plan position east and north, in metres, without
 // negative zeros: "E 59.9 m, N -4.5 m".
 func en(p [3]float64) string { return "E " + fix(p[0], 1) + " m, N " + fix(p[1], 1) + " m" }
@@ -910,6 +943,7 @@ func (v *view) summarise() {
 	if n := len(d.Warnings); n > 0 {
 		v.Counts += fmt.Sprintf(" See also %s about the run at the end of the report.", plural(n, "warning"))
 	}
+	v.MostPressing = v.mostPressing()
 	var curSig, curRel, depSig []float64
 	if r := d.Route; r != nil && len(r.Stations) > 1 {
 		var used []Station

@@ -22,10 +22,11 @@ h2 { font-size: 1.15rem; margin: 2rem 0 .6rem; padding-bottom: .25rem; border-bo
 h3 { font-size: 1rem; margin: 1.2rem 0 .4rem; }
 .sub { color: var(--muted); margin: 0 0 1rem; }
 .cautions { border: 2px solid var(--ink); padding: .7rem 1rem; margin: 1rem 0 1.2rem; background: var(--band); }
-.cautions strong { display: block; text-transform: uppercase; letter-spacing: .06em; font-size: .85rem; margin-bottom: .3rem; }
+.cautions h2 { text-transform: uppercase; letter-spacing: .06em; font-size: .85rem; margin: 0 0 .3rem; padding: 0; border: 0; }
 .cautions ol { margin: 0; padding-left: 1.3rem; }
 .summary p { margin: .35rem 0; }
 .summary .lead { font-size: 1.08rem; }
+.summary .counts { font-size: 1.08rem; border-left: 4px solid var(--ink); padding-left: .6rem; }
 .howsure { color: var(--muted); }
 table { border-collapse: collapse; width: 100%; margin: .5rem 0; font-size: .9rem; }
 th, td { text-align: left; vertical-align: top; padding: .3rem .45rem; border-bottom: 1px solid var(--rule); }
@@ -124,8 +125,9 @@ footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rul
 <p class="sub">{{if .ShowSite}}{{.D.Site}} · {{end}}{{with .D.Created}}made {{.}} · {{end}}{{or .D.Tool.Name "undercurrent"}} {{.D.Tool.Version}}</p>
 </header>
 
-<section class="cautions" aria-label="cautions">
-<strong>Read before acting on this report</strong>
+<main>
+<section class="cautions">
+<h2>Read before acting on this report</h2>
 <ol>
 {{range .Cautions}}<li>{{.}}</li>
 {{end}}</ol>
@@ -133,19 +135,22 @@ footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rul
 
 <section class="summary">
 <h2>Summary</h2>
+<p class="counts">{{.Counts}}{{with .MostPressing}} <strong>{{.}}</strong>{{end}}{{if .Findings}} <a href="#findings">Go to the findings</a>.{{end}}</p>
 {{range $i, $h := .Headline}}<p{{if eq $i 0}} class="lead"{{end}}>{{$h}}</p>
-{{end}}<p>{{.Counts}}</p>
-{{with .HowSure}}<p class="howsure">{{.}}</p>{{end}}
+{{end}}{{with .HowSure}}<p class="howsure">{{.}}</p>{{end}}
 {{with .SigmaNote}}<p class="note">{{.}}</p>{{end}}
+</section>
 {{if .Findings}}
+<section id="findings">
+<h2>Findings</h2>
 <div class="wide"><table class="findings">
 <thead><tr><th>#</th><th>Severity</th><th>What</th><th>Where</th><th>Detail</th></tr></thead>
 <tbody>
 {{range .Findings}}<tr><td class="num">{{.N}}</td><td><span class="sev sev-{{.Severity}}">{{.Severity}}</span></td><td>{{.Kind}}</td><td class="where">{{.Where}}</td><td class="detail">{{.Message}}{{with .Values}}<div class="values">({{.}})</div>{{end}}{{with .Items}}<ul class="values">{{range .}}<li>{{.}}</li>{{end}}</ul>{{end}}</td></tr>
 {{end}}</tbody>
 </table></div>
-{{end}}
 </section>
+{{end}}
 
 <section>
 <h2>Plan view</h2>
@@ -241,6 +246,7 @@ footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rul
 {{range .D.Notes}}<li>{{.}}</li>
 {{end}}</ul>{{end}}
 </section>
+</main>
 
 <footer>Made by {{or .D.Tool.Name "undercurrent"}} {{.D.Tool.Version}}{{with .D.Tool.Build}} ({{.}}){{end}} · result document schema {{.D.SchemaVersion}}. Positions in metres, fields in nanotesla, currents in amperes{{if eq .D.Signal.Mode "ac"}} (RMS){{end}}.</footer>
 </body>
