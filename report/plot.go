@@ -194,10 +194,16 @@ func tickLabels(vals []float64, span float64) []string {
 		}
 	}
 	tol := tickLabelTol * spacing
-	big := spacing < 1e-4
+	// Exponent notation for values of a million and more, or for tiny
+	// values at tiny spacings; not for values of about 1 at a spacing
+	// under 1e-4, where 'g' dropped trailing zeros and one axis read
+	// "1.1" beside "1.1001" (found in review): fixed notation gives every
+	// label on an axis one number of decimals.
+	largest := 0.0
 	for _, v := range vals {
-		big = big || math.Abs(v) >= 1e6
+		largest = math.Max(largest, math.Abs(v))
 	}
+	big := spacing < 1e-4 && largest < 1e-3 || largest >= 1e6
 	format := func(prec int) ([]string, bool) {
 		out := make([]string, len(vals))
 		for i, v := range vals {
@@ -1584,12 +1590,14 @@ func alongPlot(d *Document, r *Route, conductor int, which string, narrow bool) 
 				p.Legend.Add(name, l)
 			}
 		}
+		p.Y.Min, p.Y.Max = floorSpan(p.Y.Min, p.Y.Max, minAlongSpan(which, y))
 		padY(p, 0.05, 0.08)
 	}
 	// Mark current steps where their findings place them (on the phase
 	// plot too: where current leaves at an angle to the line current the
 	// phase turns there).
 	if which != "depth" {
+		p.Y.Min, p.Y.Max = floorSpan(p.Y.Min, p.Y.Max, minAlongSpan(which, y))
 		padY(p, 0.05, 0.1)
 		lo, hi := p.Y.Min, p.Y.Max
 		stepNamed := false
@@ -1749,6 +1757,53 @@ func stepMark(f *Finding) (at, sigma float64) {
 		}
 	}
 	return (f.ChainageFrom + f.ChainageTo) / 2, 0
+}
+
+// Least spans of the along-route plots' value axes (minAlongSpan). Scaled
+// to the data alone, an AC route's depth axis ran 1.0998 to 1.1004 m and
+// its current 19.996 to 20.008 A: noise of a fraction of a millimetre or
+// a few milliamps drawn at full height read as a cable that rises and
+// falls (found in review), with error bars that count the reading noise
+// only. A crew reads depth to about a tenth of a metre, and a current
+// that changes by a few per cent along a route is within the realistic
+// spread between stations that the summary gives.
+const (
+	minDepthSpan       = 0.2  // m, depth and cover
+	minPhaseSpan       = 2.0  // degrees
+	minCurrentFraction = 0.05 // of the median |current| of the used stations
+	minCurrentSpan     = 0.01 // A, for a route whose current is about zero
+)
+
+// minAlongSpan is the least span of the value axis of the along-route
+// plot which ("current", "depth" or "phase") whose used stations' values
+// are y.
+func minAlongSpan(which string, y []float64) float64 {
+	switch which {
+	case "depth":
+		return minDepthSpan
+	case "phase":
+		return minPhaseSpan
+	}
+	abs := make([]float64, 0, len(y))
+	for _, v := range y {
+		if !math.IsNaN(v) && !math.IsInf(v, 0) {
+			abs = append(abs, math.Abs(v))
+		}
+	}
+	if len(abs) == 0 {
+		return minCurrentSpan
+	}
+	return math.Max(minCurrentFraction*median(abs), minCurrentSpan)
+}
+
+// floorSpan widens the range lo to hi about its middle to at least span
+// min; a range already as wide, or not finite, is returned as it is.
+func floorSpan(lo, hi, min float64) (float64, float64) {
+	if !(hi >= lo) || math.IsInf(lo, 0) || math.IsInf(hi, 0) || hi-lo >= min {
+		return lo, hi
+	}
+	mid := (lo + hi) / 2
+	return mid - min/2, mid + min/2
 }
 
 // padY widens the y range by the fractions lo and hi of its span at the
