@@ -33,7 +33,9 @@ var (
 	colNorth   = color.RGBA{0x7a, 0x4e, 0x9c, 0xff}
 	colUp      = color.RGBA{0xb5, 0x65, 0x1d, 0xff}
 	colWarning = color.RGBA{0xb3, 0x26, 0x1e, 0xff}
-	colCaution = color.RGBA{0xc9, 0x8a, 0x00, 0xff}
+	// colCaution is darker than the page's amber (#c98a00, 2.95:1 on
+	// white, under the 3:1 graphics need): #a87000, 4.2:1.
+	colCaution = color.RGBA{0xa8, 0x70, 0x00, 0xff}
 	colInfo    = color.RGBA{0x5f, 0x6b, 0x7a, 0xff}
 	colGround  = color.RGBA{0x6b, 0x4f, 0x2a, 0xff}
 	colTrack   = color.RGBA{0x3d, 0x47, 0x52, 0xff}
@@ -47,6 +49,57 @@ var trackDashes = [][]vg.Length{{6, 3}, {1.5, 2.5}, {6, 2.5, 1.5, 2.5}}
 
 // trackGlyphs mark the stations of further conductors, in the same order.
 var trackGlyphs = []draw.GlyphDrawer{draw.RingGlyph{}, draw.SquareGlyph{}, draw.CrossGlyph{}}
+
+// severityMark is the plan view's mark of a finding: a triangle filled
+// from its base to Fill of its height, outlined in its colour. The
+// severities differ by fill as well as colour (severityGlyph), so that they
+// read apart in a grey print and to a reader who does not tell red from
+// amber: before, all three were thin hollow outlines and only the colour
+// told them apart (found in review).
+type severityMark struct{ Fill float64 }
+
+// DrawGlyph implements draw.GlyphDrawer.
+func (m severityMark) DrawGlyph(c *draw.Canvas, sty draw.GlyphStyle, pt vg.Point) {
+	const sin30, cos30 = 0.5, 0.8660254037844386
+	r := sty.Radius + (sty.Radius-sty.Radius*sin30)/2
+	top := vg.Point{X: pt.X, Y: pt.Y + r}
+	left := vg.Point{X: pt.X - r*cos30, Y: pt.Y - r*sin30}
+	right := vg.Point{X: pt.X + r*cos30, Y: pt.Y - r*sin30}
+	if f := math.Min(math.Max(m.Fill, 0), 1); f > 0 {
+		h := top.Y - left.Y
+		y := left.Y + vg.Length(f)*h
+		w := r * cos30 * vg.Length(1-f)
+		fill := vg.Path{}
+		fill.Move(left)
+		fill.Line(right)
+		fill.Line(vg.Point{X: pt.X + w, Y: y})
+		fill.Line(vg.Point{X: pt.X - w, Y: y})
+		fill.Close()
+		c.SetColor(sty.Color)
+		c.Fill(fill)
+	}
+	c.SetLineStyle(draw.LineStyle{Color: sty.Color, Width: vg.Points(1.2)})
+	out := vg.Path{}
+	out.Move(top)
+	out.Line(left)
+	out.Line(right)
+	out.Close()
+	c.Stroke(out)
+}
+
+// severityGlyph is the mark of a finding of severity s on the plan view:
+// solid for a warning, filled from its base to half its height (three
+// quarters of its area) for a caution, hollow for
+// a note.
+func severityGlyph(s string) severityMark {
+	switch s {
+	case SeverityWarning:
+		return severityMark{Fill: 1}
+	case SeverityCaution:
+		return severityMark{Fill: 0.5}
+	}
+	return severityMark{}
+}
 
 func severityColour(s string) color.Color {
 	switch s {
@@ -1135,7 +1188,7 @@ func onPlan(f *Finding) bool { return !wholeRoute(f) }
 func wholeRoute(f *Finding) bool { return f.Kind == "attenuation" }
 
 // addFindingMarks numbers the findings on the plan view: a triangle
-// coloured by severity at each, drawn least pressing first so that a
+// coloured and filled by severity (severityGlyph) at each, drawn least pressing first so that a
 // warning's is never hidden under a note's at the same place, and the
 // labels of findingLabels over them all. It then names chainage 0 beside
 // its mark (chainageStart, which planPlot draws) and the groups
@@ -1156,7 +1209,7 @@ func addFindingMarks(p *plot.Plot, d *Document, side vg.Length, frame *planFrame
 		if !onPlan(&f) || frame != nil && !frame.has(f.Position[0], f.Position[1]) {
 			continue
 		}
-		if _, err := scatter(p, xy{[]float64{f.Position[0]}, []float64{f.Position[1]}}, draw.TriangleGlyph{}, severityColour(f.Severity), markRadius); err != nil {
+		if _, err := scatter(p, xy{[]float64{f.Position[0]}, []float64{f.Position[1]}}, severityGlyph(f.Severity), severityColour(f.Severity), markRadius); err != nil {
 			return err
 		}
 	}
