@@ -112,8 +112,8 @@ func TestPhoneGroupsTable(t *testing.T) {
 	if table == "" {
 		t.Fatal("no table of every group")
 	}
-	rows := strings.Count(table, "<tr><td") + strings.Count(table, `<tr class="bad"><td`)
-	labels := strings.Count(table, `<td class="stick">`)
+	rows := strings.Count(table, "<tr><th") + strings.Count(table, `<tr class="bad"><th`)
+	labels := strings.Count(table, `<th scope="row" class="stick">`)
 	chainages := strings.Count(table, `<td class="num stick stick2">`)
 	if rows != len(d.Groups) || labels != rows || chainages != rows {
 		t.Errorf("%d rows for %d groups, %d sticky group cells, %d sticky chainage cells; want one each per row", rows, len(d.Groups), labels, chainages)

@@ -69,3 +69,39 @@ func TestSummaryLeadsWithWarnings(t *testing.T) {
 		t.Error("the cautions' title is not a heading")
 	}
 }
+
+// TestGroupsTableRowsHeaded: in the table of every group each row is
+// headed by its group (a th with scope="row", so that a screen reader
+// names the group with each number), the cover, the figure a crew acts on,
+// comes right after the conductor's number (it was the sixth column,
+// off a phone's screen), and a hint, shown on narrow screens only, says
+// that the table scrolls sideways.
+func TestGroupsTableRowsHeaded(t *testing.T) {
+	d := fenwickLane(true)
+	d.Conductors = []Track{{Number: 2}}
+	var buf bytes.Buffer
+	if err := WriteHTML(&buf, d); err != nil {
+		t.Fatal(err)
+	}
+	page := buf.String()
+	table := regexp.MustCompile(`(?s)<table class="groups">.*?</table>`).FindString(page)
+	head := regexp.MustCompile(`(?s)<thead>.*?</thead>`).FindString(table)
+	cond, cover, cur := strings.Index(head, "<th>Conductor</th>"), strings.Index(head, "<th>Cover (m)</th>"), strings.Index(head, "<th>Current (A)</th>")
+	if cond < 0 || cover < cond || cur < cover || strings.Contains(head[cond:cover], "<th>Current") {
+		t.Errorf("columns Conductor at %d, Cover at %d, Current at %d: want Cover right after Conductor\n%s", cond, cover, cur, head)
+	}
+	rows := regexp.MustCompile(`<tr[^>]*>(<t[dh][^>]*>)`).FindAllStringSubmatch(regexp.MustCompile(`(?s)<tbody>.*?</tbody>`).FindString(table), -1)
+	if len(rows) != len(d.Groups) {
+		t.Fatalf("%d rows for %d groups", len(rows), len(d.Groups))
+	}
+	for _, r := range rows {
+		if r[1] != `<th scope="row" class="stick">` {
+			t.Errorf("a row begins with %s, not a row header", r[1])
+			break
+		}
+	}
+	hint := strings.Index(page, `<p class="scroll-hint"`)
+	if hint < 0 || hint > strings.Index(page, `<table class="groups">`) || !strings.Contains(page, ".scroll-hint { display: block; }") {
+		t.Error("no hint before the table that it scrolls sideways on a narrow screen")
+	}
+}

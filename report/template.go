@@ -79,12 +79,15 @@ code { font-size: .85em; word-break: break-all; }
   table.groups .stick { position: sticky; left: 0; z-index: 1; background: var(--paper);
     width: 4.5rem; min-width: 4.5rem; max-width: 4.5rem; overflow-wrap: anywhere; }
   table.groups .stick2 { left: 4.5rem; width: auto; min-width: 0; max-width: none; overflow-wrap: normal; box-shadow: inset -1px 0 0 var(--rule); }
-  table.groups th.stick { background: var(--band); }
+  table.groups thead th.stick { background: var(--band); }
+  .scroll-hint { display: block; }
   table.groups td.fit { min-width: 9rem; }
   table.groups .fit-detail { display: none; }
   table.groups td.fit .print-only, div.fit-why { display: revert; }
 }
 table.groups { font-size: .85rem; }
+table.groups tbody th { background: var(--paper); }
+.scroll-hint { display: none; color: var(--muted); font-size: .85rem; font-style: italic; margin: .2rem 0; }
 table.groups th, table.groups td { padding: .25rem .35rem; }
 footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rule); color: var(--muted); font-size: .8rem; }
 .print-only { display: none; }
@@ -198,11 +201,12 @@ footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rul
 
 <section>
 <h2>Every group</h2>
+<p class="scroll-hint" aria-hidden="true">The table is wider than the screen: swipe it sideways for every column →</p>
 <div class="wide"><table class="groups">
 <thead><tr class="print-only"><th colspan="{{.GroupCols}}">{{.CautionShort}}</th></tr>
-<tr><th class="stick">Group</th><th class="stick stick2">Chainage (m)</th>{{if .D.Conductors}}<th>Conductor</th>{{end}}<th>Current (A)</th>{{if eq .D.Signal.Mode "ac"}}<th>Phase (°)</th>{{end}}<th>{{.CoverHead}}</th>{{if .DepthCol}}<th>{{.DepthHead}}</th>{{end}}<th>{{if .D.Frame.Origin}}Lat, lon (°){{else}}E, N (m){{end}}</th><th>Azimuth (°)</th><th>RMS (nT)</th><th>Readings</th><th class="fit">Fit</th></tr></thead>
+<tr><th class="stick">Group</th><th class="stick stick2">Chainage (m)</th>{{if .D.Conductors}}<th>Conductor</th>{{end}}<th>{{.CoverHead}}</th>{{if .DepthCol}}<th>{{.DepthHead}}</th>{{end}}<th>Current (A)</th>{{if eq .D.Signal.Mode "ac"}}<th>Phase (°)</th>{{end}}<th>{{if .D.Frame.Origin}}Lat, lon (°){{else}}E, N (m){{end}}</th><th>Azimuth (°)</th><th>RMS (nT)</th><th>Readings</th><th class="fit">Fit</th></tr></thead>
 <tbody>
-{{$ac := eq .D.Signal.Mode "ac"}}{{$tracks := .D.Conductors}}{{$depthCol := .DepthCol}}{{range .Groups}}<tr{{if .Bad}} class="bad"{{end}}><td class="stick">{{.Key}}</td><td class="num stick stick2">{{.Chainage}}</td>{{if $tracks}}<td class="num">{{range $i, $v := .Conductor}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{end}}<td class="num">{{range $i, $v := .Current}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{if $ac}}<td class="num">{{range $i, $v := .Phase}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{end}}<td class="num">{{range $i, $v := .Cover}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{if $depthCol}}<td class="num">{{range $i, $v := .Depth}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{end}}<td class="num">{{range $i, $v := .Position}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td><td class="num">{{range $i, $v := .Azimuth}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td><td class="num">{{.RMS}}</td><td class="num">{{.Points}}</td><td class="fit">{{if .StatusShort}}<span class="fit-detail">{{.Status}}</span><span class="print-only">{{.StatusShort}} (why: below the table)</span>{{else}}{{.Status}}{{end}}</td></tr>
+{{$ac := eq .D.Signal.Mode "ac"}}{{$tracks := .D.Conductors}}{{$depthCol := .DepthCol}}{{range .Groups}}<tr{{if .Bad}} class="bad"{{end}}><th scope="row" class="stick">{{.Key}}</th><td class="num stick stick2">{{.Chainage}}</td>{{if $tracks}}<td class="num">{{range $i, $v := .Conductor}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{end}}<td class="num">{{range $i, $v := .Cover}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{if $depthCol}}<td class="num">{{range $i, $v := .Depth}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{end}}<td class="num">{{range $i, $v := .Current}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{if $ac}}<td class="num">{{range $i, $v := .Phase}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{end}}<td class="num">{{range $i, $v := .Position}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td><td class="num">{{range $i, $v := .Azimuth}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td><td class="num">{{.RMS}}</td><td class="num">{{.Points}}</td><td class="fit">{{if .StatusShort}}<span class="fit-detail">{{.Status}}</span><span class="print-only">{{.StatusShort}} (why: below the table)</span>{{else}}{{.Status}}{{end}}</td></tr>
 {{end}}</tbody>
 </table></div>
 <p class="values">One line per fitted conductor, strongest first. {{if .D.Frame.Origin}}Lat, lon{{else}}E, N{{end}}: where each conductor passes closest to the centre of its group's readings (for an object, where it lies; for a pair of lines not told apart, the pair's centre){{if .D.Frame.Origin}}, WGS84 latitude and longitude in decimal degrees, negative south and west (results.csv and results.json give the local east and north too){{else}}, local east and north in metres as on the plan view{{end}}.{{if .D.Conductors}} Conductor: 1 for the one the route follows, 2, 3, ... for the further conductors followed along it, – for a source in no track. Chainage is along the route (conductor 1); a further conductor's own chainage, measured along it from its first station as its findings give it, follows its number in brackets where it differs.{{end}}{{if .PlanShows.Failed}} A fit that failed gives no current, depth, cover or place: its numbers mean nothing there (the Fit column says why; results.json keeps them with the fit's problem).{{end}} Uncertainties are one standard deviation from the reading noise only; they do not count the error of the model, which is often many times larger{{with .Scatter}} (see the realistic spread in the summary){{end}}. {{if .DepthCol}}Cover is the depth below the ground; the depth below the sensors is measured {{else}}Cover is the depth {{end}}{{.DepthRef}}.{{if .CoverNA}} *Cover n/a: the sensors' height above the ground was not given, so the depth of cover below the ground cannot be computed: it is less than the depth below the sensors by their height above the ground (give it with --sensor-height, or the ground level with --reference-z).{{end}}</p>
