@@ -101,7 +101,9 @@ func TestGroupsTableRowsHeaded(t *testing.T) {
 		}
 	}
 	hint := strings.Index(page, `<p class="scroll-hint"`)
-	if hint < 0 || hint > strings.Index(page, `<table class="groups">`) || !strings.Contains(page, ".scroll-hint { display: block; }") {
-		t.Error("no hint before the table that it scrolls sideways on a narrow screen")
+	hidden, shown := strings.Index(page, ".scroll-hint { display: none;"), strings.Index(page, ".scroll-hint { display: block; }")
+	narrow := strings.Index(page, "@media screen and (max-width: 40rem)")
+	if hint < 0 || hint > strings.Index(page, `<table class="groups">`) || shown < narrow || hidden < 0 || hidden > narrow {
+		t.Error("no hint before the table that it scrolls sideways, shown on a narrow screen only (hidden before the small-screen rules, shown in them)")
 	}
 }

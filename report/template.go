@@ -53,6 +53,7 @@ dt { font-weight: 600; }
 dd { margin: 0; }
 code { font-size: .85em; word-break: break-all; }
 .wide { overflow-x: auto; }
+.scroll-hint { display: none; color: var(--muted); font-size: .85rem; font-style: italic; margin: .2rem 0; }
 /* Each figure is drawn twice: wide for screens and print, narrow for a
    phone, where the wide one's text would be scaled down to 5-7 px. */
 .fig-narrow { display: none; }
@@ -87,7 +88,6 @@ code { font-size: .85em; word-break: break-all; }
 }
 table.groups { font-size: .85rem; }
 table.groups tbody th { background: var(--paper); }
-.scroll-hint { display: none; color: var(--muted); font-size: .85rem; font-style: italic; margin: .2rem 0; }
 table.groups th, table.groups td { padding: .25rem .35rem; }
 footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rule); color: var(--muted); font-size: .8rem; }
 .print-only { display: none; }
