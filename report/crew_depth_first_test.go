@@ -240,7 +240,8 @@ func TestCrewSummaryLeastCoverDoubtOneConductor(t *testing.T) {
 // row, the last of the findings table, numbered as the plan view marks
 // them: the demo listed 12 of them one by one among its 18 findings, and
 // the note on a magnetised object was lost among them (review rv18a,
-// finding 6). Each note's own words stay in the row.
+// finding 6). The notes' words stay in the row, those of one kind merged
+// into one item with their numbers and groups (mergeNotes).
 func TestCrewFindingsSlightMisfitsGathered(t *testing.T) {
 	d := fenwickLane(false)
 	base := len(d.Findings)
@@ -261,7 +262,7 @@ func TestCrewFindingsSlightMisfitsGathered(t *testing.T) {
 	}
 	last := rows[len(rows)-1]
 	nums := strconv.Itoa(base+1) + "–" + strconv.Itoa(base+3)
-	for _, want := range []string{">" + nums + "<", "3 fits miss their readings", "at most 0.90% of the signal", "groups T03, T05, T06", "fit at T05 misses"} {
+	for _, want := range []string{">" + nums + "<", "3 fits miss their readings", "at most 0.90% of the signal", "groups T03, T05, T06", nums + " (3 notes; groups T03, T05, T06): fit at each group misses"} {
 		if !strings.Contains(last, want) {
 			t.Errorf("the last findings row lacks %q: %s", want, last)
 		}

@@ -78,7 +78,7 @@ func TestFurtherConductorChainage(t *testing.T) {
 		t.Fatal(err)
 	}
 	html := buf.String()
-	i := strings.Index(html, `<td class="stick">G04</td>`)
+	i := strings.Index(html, `<th scope="row" class="stick">G04</th>`)
 	if i < 0 {
 		t.Fatal("no G04 row in the HTML table")
 	}
@@ -209,7 +209,7 @@ func TestObjectMomentEverywhere(t *testing.T) {
 		t.Fatal(err)
 	}
 	html := buf.String()
-	i := strings.Index(html, `<td class="stick">T11</td>`)
+	i := strings.Index(html, `<th scope="row" class="stick">T11</th>`)
 	row := html[i : i+strings.Index(html[i:], "</tr>")]
 	cover := PlusMinus(0.9046-d.DepthReference.SensorHeight, 0.0213)
 	if !strings.Contains(row, cover) {

@@ -86,7 +86,7 @@ func TestFailedFitLeavesStatisticsOut(t *testing.T) {
 		t.Fatal(err)
 	}
 	page := buf.String()
-	i := strings.Index(page, `<td class="stick">K5</td>`)
+	i := strings.Index(page, `<th scope="row" class="stick">K5</th>`)
 	if i < 0 {
 		t.Fatal("no K5 row in the report")
 	}

@@ -81,9 +81,16 @@ type view struct {
 	DepthCaption string
 	// InputsNA is true when an input has no readings to count.
 	InputsNA bool
-	Counts   string
-	Findings []findingRow
-	Cautions []string
+	// Counts gives the findings by severity, and MostPressing names the
+	// most pressing of them (kind, place, value): both lead the summary,
+	// so that a phone's first screen says there are warnings and which
+	// matters most. They came last in the summary, after the four-decimal
+	// figures and the realistic spread, and the demo's first warning
+	// started 2.1 phone screens down (found in review).
+	Counts       string
+	MostPressing string
+	Findings     []findingRow
+	Cautions     []string
 	// CautionShort is the one-line caution printed on every page.
 	CautionShort string
 	// GroupCols is the number of columns of the table of every group.
@@ -751,13 +758,13 @@ func minorMisfits(d *Document) []int {
 // with the largest share of the signal any of them misses by, and each
 // note's own words below it.
 func minorMisfitRow(d *Document, minor []int) findingRow {
-	var keys, items []string
+	var keys, msgs []string
 	worst := 0.0
 	lo, hi := math.Inf(1), math.Inf(-1)
 	for _, i := range minor {
 		f := &d.Findings[i]
 		keys = append(keys, f.Groups...)
-		items = append(items, fmt.Sprintf("%d: %s", i+1, f.Message))
+		msgs = append(msgs, f.Message)
 		lo, hi = math.Min(lo, f.ChainageFrom), math.Max(hi, f.ChainageTo)
 		var res, sig float64
 		for _, x := range f.Values {
@@ -782,6 +789,31 @@ func minorMisfitRow(d *Document, minor []int) findingRow {
 		msg += fmt.Sprintf(" (at most %s%% of the signal)", sigText(100*worst))
 	}
 	msg += ": the straight-line model is only approximate there (a bend, a change of depth, a change of current or a nearby object, as each note says). Their estimates are used and hold to about the share they miss by, but their ± figures may be too small. A fit that misses by more is a caution."
+	// The notes' own words, those of one kind (the same words with other
+	// numbers and groups) merged into one item: their numbers, groups and
+	// the range of each value.
+	own := func(i int) map[string]bool {
+		names := map[string]bool{}
+		for _, g := range d.Findings[minor[i]].Groups {
+			names[g] = true
+		}
+		return names
+	}
+	var items []string
+	for _, m := range mergeNotes(msgs, own) {
+		if len(m.at) == 1 {
+			k := minor[m.at[0]]
+			items = append(items, fmt.Sprintf("%d: %s", k+1, d.Findings[k].Message))
+			continue
+		}
+		var idx []int
+		var gs []string
+		for _, a := range m.at {
+			idx = append(idx, minor[a])
+			gs = append(gs, d.Findings[minor[a]].Groups...)
+		}
+		items = append(items, fmt.Sprintf("%s (%d notes; groups %s): %s", numberRuns(idx), len(idx), strings.Join(gs, ", "), m.line()))
+	}
 	return findingRow{
 		N: numberRuns(minor), Severity: SeverityInfo, Kind: "slight misfits",
 		Where: strings.Join(where, " · "), Message: msg, Items: items,
@@ -811,7 +843,9 @@ func numberRuns(idx []int) string {
 }
 
 // fitNotes gathers the fits' notes, each text once with the groups it
-// applies to, in order of first appearance.
+// applies to, in order of first appearance, and notes of one kind (the
+// same words with other numbers) in one line with the range of each
+// number (mergeNotes).
 func fitNotes(d *Document) []string {
 	var order []string
 	groups := map[string][]string{}
@@ -845,16 +879,63 @@ func fitNotes(d *Document) []string {
 			}
 		}
 	}
-	out := make([]string, len(order))
-	for i, text := range order {
-		gs := groups[text]
+	// Notes of one kind, the same words with other numbers, merged into
+	// one line (mergeNotes): the range of each number, and the groups of
+	// them all in the groups' order.
+	rank := map[string]int{"(all)": -1}
+	for i := range d.Groups {
+		rank[d.Groups[i].Key] = i
+	}
+	var out []string
+	for _, m := range mergeNotes(order, nil) {
+		text := order[m.at[0]]
+		if len(m.at) > 1 {
+			text = m.line()
+		}
+		var gs []string
+		seen := map[string]bool{}
+		for _, a := range m.at {
+			for _, g := range groups[order[a]] {
+				if !seen[g] {
+					seen[g] = true
+					gs = append(gs, g)
+				}
+			}
+		}
+		sort.SliceStable(gs, func(a, b int) bool { return rank[gs[a]] < rank[gs[b]] })
 		if len(d.Groups) == 1 {
-			out[i] = text
+			out = append(out, text)
 			continue
 		}
-		out[i] = text + " (" + plural(len(gs), "group") + ": " + strings.Join(gs, ", ") + ")"
+		out = append(out, text+" ("+plural(len(gs), "group")+": "+strings.Join(gs, ", ")+")")
 	}
 	return out
+}
+
+// mostPressing names the first of the most severe findings, as the
+// findings table numbers it: its severity, kind, place (the chainage, or
+// where there is no route its east and north) and first value. Empty
+// when there are no findings, or only notes.
+func (v *view) mostPressing() string {
+	best := -1
+	for i := range v.D.Findings {
+		if best < 0 || severityRank(v.D.Findings[i].Severity) < severityRank(v.D.Findings[best].Severity) {
+			best = i
+		}
+	}
+	if best < 0 || v.D.Findings[best].Severity == SeverityInfo {
+		return ""
+	}
+	f := v.D.Findings[best]
+	place := en(f.Position)
+	if v.D.Route != nil {
+		place = strings.SplitN(v.where(f), " · ", 2)[0]
+	}
+	s := fmt.Sprintf("Most pressing: finding %d, a %s, %s at %s", best+1, f.Severity, kindLabel(f.Kind), place)
+	if len(f.Values) > 0 {
+		s += ": " + valueText(f.Values[0])
+	}
+	return s + "."
 }
 
 // en formats a local plan position east and north, in metres, without
@@ -910,6 +991,7 @@ func (v *view) summarise() {
 	if n := len(d.Warnings); n > 0 {
 		v.Counts += fmt.Sprintf(" See also %s about the run at the end of the report.", plural(n, "warning"))
 	}
+	v.MostPressing = v.mostPressing()
 	var curSig, curRel, depSig []float64
 	if r := d.Route; r != nil && len(r.Stations) > 1 {
 		var used []Station

@@ -117,7 +117,7 @@ func TestPoorGroupAgreesWithFindings(t *testing.T) {
 	if err := WriteHTML(&buf, d); err != nil {
 		t.Fatal(err)
 	}
-	if !strings.Contains(buf.String(), `<tr class="bad"><td class="stick">G03</td>`) || !strings.Contains(buf.String(), "poor or ambiguous, used with care: the readings miss the fitted conductors by 7.07 times") {
+	if !strings.Contains(buf.String(), `<tr class="bad"><th scope="row" class="stick">G03</th>`) || !strings.Contains(buf.String(), "poor or ambiguous, used with care: the readings miss the fitted conductors by 7.07 times") {
 		t.Error("the HTML table does not show G03 as a poor fit")
 	}
 	if !strings.Contains(buf.String(), "fitted in 10 of 10 groups, 9 of them soundly") {

@@ -95,7 +95,7 @@ func TestPhoneGroupsTable(t *testing.T) {
 	for _, want := range []string{
 		"table.groups .stick { position: sticky; left: 0; z-index: 1; background: var(--paper);",
 		"table.groups .stick2 { left: 4.5rem;",
-		"table.groups th.stick { background: var(--band); }",
+		"table.groups thead th.stick { background: var(--band); }",
 		"table.groups .fit-detail { display: none; }",
 		"table.groups td.fit .print-only, div.fit-why { display: revert; }",
 	} {
@@ -112,8 +112,9 @@ func TestPhoneGroupsTable(t *testing.T) {
 	if table == "" {
 		t.Fatal("no table of every group")
 	}
-	rows := strings.Count(table, "<tr><td") + strings.Count(table, `<tr class="bad"><td`)
-	labels := strings.Count(table, `<td class="stick">`)
+	body := regexp.MustCompile(`(?s)<tbody>.*?</tbody>`).FindString(table)
+	rows := strings.Count(body, "<tr><th") + strings.Count(body, `<tr class="bad"><th`)
+	labels := strings.Count(table, `<th scope="row" class="stick">`)
 	chainages := strings.Count(table, `<td class="num stick stick2">`)
 	if rows != len(d.Groups) || labels != rows || chainages != rows {
 		t.Errorf("%d rows for %d groups, %d sticky group cells, %d sticky chainage cells; want one each per row", rows, len(d.Groups), labels, chainages)

@@ -33,9 +33,10 @@ func groupsTable(t *testing.T, page string) (heads []string, rows map[string][][
 		heads = append(heads, html.UnescapeString(c[1]))
 	}
 	rows = map[string][][]string{}
-	for _, tr := range regexp.MustCompile(`(?s)<tr[^>]*>(.*?)</tr>`).FindAllStringSubmatch(m[1], -1) {
+	body := regexp.MustCompile(`(?s)<tbody>.*?</tbody>`).FindString(m[1])
+	for _, tr := range regexp.MustCompile(`(?s)<tr[^>]*>(.*?)</tr>`).FindAllStringSubmatch(body, -1) {
 		cs := cell.FindAllStringSubmatch(tr[1], -1)
-		if len(cs) == 0 || strings.Contains(tr[0], "<th") {
+		if len(cs) == 0 {
 			continue
 		}
 		var row [][]string

@@ -33,7 +33,9 @@ var (
 	colNorth   = color.RGBA{0x7a, 0x4e, 0x9c, 0xff}
 	colUp      = color.RGBA{0xb5, 0x65, 0x1d, 0xff}
 	colWarning = color.RGBA{0xb3, 0x26, 0x1e, 0xff}
-	colCaution = color.RGBA{0xc9, 0x8a, 0x00, 0xff}
+	// colCaution is darker than the page's amber (#c98a00, 2.95:1 on
+	// white, under the 3:1 graphics need): #a87000, 4.2:1.
+	colCaution = color.RGBA{0xa8, 0x70, 0x00, 0xff}
 	colInfo    = color.RGBA{0x5f, 0x6b, 0x7a, 0xff}
 	colGround  = color.RGBA{0x6b, 0x4f, 0x2a, 0xff}
 	colTrack   = color.RGBA{0x3d, 0x47, 0x52, 0xff}
@@ -47,6 +49,57 @@ var trackDashes = [][]vg.Length{{6, 3}, {1.5, 2.5}, {6, 2.5, 1.5, 2.5}}
 
 // trackGlyphs mark the stations of further conductors, in the same order.
 var trackGlyphs = []draw.GlyphDrawer{draw.RingGlyph{}, draw.SquareGlyph{}, draw.CrossGlyph{}}
+
+// severityMark is the plan view's mark of a finding: a triangle filled
+// from its base to Fill of its height, outlined in its colour. The
+// severities differ by fill as well as colour (severityGlyph), so that they
+// read apart in a grey print and to a reader who does not tell red from
+// amber: before, all three were thin hollow outlines and only the colour
+// told them apart (found in review).
+type severityMark struct{ Fill float64 }
+
+// DrawGlyph implements draw.GlyphDrawer.
+func (m severityMark) DrawGlyph(c *draw.Canvas, sty draw.GlyphStyle, pt vg.Point) {
+	const sin30, cos30 = 0.5, 0.8660254037844386
+	r := sty.Radius + (sty.Radius-sty.Radius*sin30)/2
+	top := vg.Point{X: pt.X, Y: pt.Y + r}
+	left := vg.Point{X: pt.X - r*cos30, Y: pt.Y - r*sin30}
+	right := vg.Point{X: pt.X + r*cos30, Y: pt.Y - r*sin30}
+	if f := math.Min(math.Max(m.Fill, 0), 1); f > 0 {
+		h := top.Y - left.Y
+		y := left.Y + vg.Length(f)*h
+		w := r * cos30 * vg.Length(1-f)
+		fill := vg.Path{}
+		fill.Move(left)
+		fill.Line(right)
+		fill.Line(vg.Point{X: pt.X + w, Y: y})
+		fill.Line(vg.Point{X: pt.X - w, Y: y})
+		fill.Close()
+		c.SetColor(sty.Color)
+		c.Fill(fill)
+	}
+	c.SetLineStyle(draw.LineStyle{Color: sty.Color, Width: vg.Points(1.2)})
+	out := vg.Path{}
+	out.Move(top)
+	out.Line(left)
+	out.Line(right)
+	out.Close()
+	c.Stroke(out)
+}
+
+// severityGlyph is the mark of a finding of severity s on the plan view:
+// solid for a warning, filled from its base to half its height (three
+// quarters of its area) for a caution, hollow for
+// a note.
+func severityGlyph(s string) severityMark {
+	switch s {
+	case SeverityWarning:
+		return severityMark{Fill: 1}
+	case SeverityCaution:
+		return severityMark{Fill: 0.5}
+	}
+	return severityMark{}
+}
 
 func severityColour(s string) color.Color {
 	switch s {
@@ -194,10 +247,16 @@ func tickLabels(vals []float64, span float64) []string {
 		}
 	}
 	tol := tickLabelTol * spacing
-	big := spacing < 1e-4
+	// Exponent notation for values of a million and more, or for tiny
+	// values at tiny spacings; not for values of about 1 at a spacing
+	// under 1e-4, where 'g' dropped trailing zeros and one axis read
+	// "1.1" beside "1.1001" (found in review): fixed notation gives every
+	// label on an axis one number of decimals.
+	largest := 0.0
 	for _, v := range vals {
-		big = big || math.Abs(v) >= 1e6
+		largest = math.Max(largest, math.Abs(v))
 	}
+	big := spacing < 1e-4 && largest < 1e-3 || largest >= 1e6
 	format := func(prec int) ([]string, bool) {
 		out := make([]string, len(vals))
 		for i, v := range vals {
@@ -1133,7 +1192,7 @@ func onPlan(f *Finding) bool { return !wholeRoute(f) }
 func wholeRoute(f *Finding) bool { return f.Kind == "attenuation" }
 
 // addFindingMarks numbers the findings on the plan view: a triangle
-// coloured by severity at each, drawn least pressing first so that a
+// coloured and filled by severity (severityGlyph) at each, drawn least pressing first so that a
 // warning's is never hidden under a note's at the same place, and the
 // labels of findingLabels over them all. It then names chainage 0 beside
 // its mark (chainageStart, which planPlot draws) and the groups
@@ -1154,7 +1213,7 @@ func addFindingMarks(p *plot.Plot, d *Document, side vg.Length, frame *planFrame
 		if !onPlan(&f) || frame != nil && !frame.has(f.Position[0], f.Position[1]) {
 			continue
 		}
-		if _, err := scatter(p, xy{[]float64{f.Position[0]}, []float64{f.Position[1]}}, draw.TriangleGlyph{}, severityColour(f.Severity), markRadius); err != nil {
+		if _, err := scatter(p, xy{[]float64{f.Position[0]}, []float64{f.Position[1]}}, severityGlyph(f.Severity), severityColour(f.Severity), markRadius); err != nil {
 			return err
 		}
 	}
@@ -1588,12 +1647,14 @@ func alongPlot(d *Document, r *Route, conductor int, which string, narrow bool) 
 				p.Legend.Add(name, l)
 			}
 		}
+		p.Y.Min, p.Y.Max = floorSpan(p.Y.Min, p.Y.Max, minAlongSpan(which, y))
 		padY(p, 0.05, 0.08)
 	}
 	// Mark current steps where their findings place them (on the phase
 	// plot too: where current leaves at an angle to the line current the
 	// phase turns there).
 	if which != "depth" {
+		p.Y.Min, p.Y.Max = floorSpan(p.Y.Min, p.Y.Max, minAlongSpan(which, y))
 		padY(p, 0.05, 0.1)
 		lo, hi := p.Y.Min, p.Y.Max
 		stepNamed := false
@@ -1753,6 +1814,53 @@ func stepMark(f *Finding) (at, sigma float64) {
 		}
 	}
 	return (f.ChainageFrom + f.ChainageTo) / 2, 0
+}
+
+// Least spans of the along-route plots' value axes (minAlongSpan). Scaled
+// to the data alone, an AC route's depth axis ran 1.0998 to 1.1004 m and
+// its current 19.996 to 20.008 A: noise of a fraction of a millimetre or
+// a few milliamps drawn at full height read as a cable that rises and
+// falls (found in review), with error bars that count the reading noise
+// only. A crew reads depth to about a tenth of a metre, and a current
+// that changes by a few per cent along a route is within the realistic
+// spread between stations that the summary gives.
+const (
+	minDepthSpan       = 0.2  // m, depth and cover
+	minPhaseSpan       = 2.0  // degrees
+	minCurrentFraction = 0.05 // of the median |current| of the used stations
+	minCurrentSpan     = 0.01 // A, for a route whose current is about zero
+)
+
+// minAlongSpan is the least span of the value axis of the along-route
+// plot which ("current", "depth" or "phase") whose used stations' values
+// are y.
+func minAlongSpan(which string, y []float64) float64 {
+	switch which {
+	case "depth":
+		return minDepthSpan
+	case "phase":
+		return minPhaseSpan
+	}
+	abs := make([]float64, 0, len(y))
+	for _, v := range y {
+		if !math.IsNaN(v) && !math.IsInf(v, 0) {
+			abs = append(abs, math.Abs(v))
+		}
+	}
+	if len(abs) == 0 {
+		return minCurrentSpan
+	}
+	return math.Max(minCurrentFraction*median(abs), minCurrentSpan)
+}
+
+// floorSpan widens the range lo to hi about its middle to at least span
+// min; a range already as wide, or not finite, is returned as it is.
+func floorSpan(lo, hi, min float64) (float64, float64) {
+	if !(hi >= lo) || math.IsInf(lo, 0) || math.IsInf(hi, 0) || hi-lo >= min {
+		return lo, hi
+	}
+	mid := (lo + hi) / 2
+	return mid - min/2, mid + min/2
 }
 
 // padY widens the y range by the fractions lo and hi of its span at the

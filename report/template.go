@@ -22,10 +22,11 @@ h2 { font-size: 1.15rem; margin: 2rem 0 .6rem; padding-bottom: .25rem; border-bo
 h3 { font-size: 1rem; margin: 1.2rem 0 .4rem; }
 .sub { color: var(--muted); margin: 0 0 1rem; }
 .cautions { border: 2px solid var(--ink); padding: .7rem 1rem; margin: 1rem 0 1.2rem; background: var(--band); }
-.cautions strong { display: block; text-transform: uppercase; letter-spacing: .06em; font-size: .85rem; margin-bottom: .3rem; }
+.cautions h2 { text-transform: uppercase; letter-spacing: .06em; font-size: .85rem; margin: 0 0 .3rem; padding: 0; border: 0; }
 .cautions ol { margin: 0; padding-left: 1.3rem; }
 .summary p { margin: .35rem 0; }
 .summary .lead { font-size: 1.08rem; }
+.summary .counts { font-size: 1.08rem; border-left: 4px solid var(--ink); padding-left: .6rem; }
 .howsure { color: var(--muted); }
 table { border-collapse: collapse; width: 100%; margin: .5rem 0; font-size: .9rem; }
 th, td { text-align: left; vertical-align: top; padding: .3rem .45rem; border-bottom: 1px solid var(--rule); }
@@ -52,6 +53,7 @@ dt { font-weight: 600; }
 dd { margin: 0; }
 code { font-size: .85em; word-break: break-all; }
 .wide { overflow-x: auto; }
+.scroll-hint { display: none; color: var(--muted); font-size: .85rem; font-style: italic; margin: .2rem 0; }
 /* Each figure is drawn twice: wide for screens and print, narrow for a
    phone, where the wide one's text would be scaled down to 5-7 px. */
 .fig-narrow { display: none; }
@@ -78,12 +80,14 @@ code { font-size: .85em; word-break: break-all; }
   table.groups .stick { position: sticky; left: 0; z-index: 1; background: var(--paper);
     width: 4.5rem; min-width: 4.5rem; max-width: 4.5rem; overflow-wrap: anywhere; }
   table.groups .stick2 { left: 4.5rem; width: auto; min-width: 0; max-width: none; overflow-wrap: normal; box-shadow: inset -1px 0 0 var(--rule); }
-  table.groups th.stick { background: var(--band); }
+  table.groups thead th.stick { background: var(--band); }
+  .scroll-hint { display: block; }
   table.groups td.fit { min-width: 9rem; }
   table.groups .fit-detail { display: none; }
   table.groups td.fit .print-only, div.fit-why { display: revert; }
 }
 table.groups { font-size: .85rem; }
+table.groups tbody th { background: var(--paper); }
 table.groups th, table.groups td { padding: .25rem .35rem; }
 footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rule); color: var(--muted); font-size: .8rem; }
 .print-only { display: none; }
@@ -124,8 +128,9 @@ footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rul
 <p class="sub">{{if .ShowSite}}{{.D.Site}} · {{end}}{{with .D.Created}}made {{.}} · {{end}}{{or .D.Tool.Name "undercurrent"}} {{.D.Tool.Version}}</p>
 </header>
 
-<section class="cautions" aria-label="cautions">
-<strong>Read before acting on this report</strong>
+<main>
+<section class="cautions">
+<h2>Read before acting on this report</h2>
 <ol>
 {{range .Cautions}}<li>{{.}}</li>
 {{end}}</ol>
@@ -133,24 +138,27 @@ footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rul
 
 <section class="summary">
 <h2>Summary</h2>
+<p class="counts">{{.Counts}}{{with .MostPressing}} <strong>{{.}}</strong>{{end}}{{if .Findings}} <a href="#findings">Go to the findings</a>.{{end}}</p>
 {{range $i, $h := .Headline}}<p{{if eq $i 0}} class="lead"{{end}}>{{$h}}</p>
-{{end}}<p>{{.Counts}}</p>
-{{with .HowSure}}<p class="howsure">{{.}}</p>{{end}}
+{{end}}{{with .HowSure}}<p class="howsure">{{.}}</p>{{end}}
 {{with .SigmaNote}}<p class="note">{{.}}</p>{{end}}
+</section>
 {{if .Findings}}
+<section id="findings">
+<h2>Findings</h2>
 <div class="wide"><table class="findings">
 <thead><tr><th>#</th><th>Severity</th><th>What</th><th>Where</th><th>Detail</th></tr></thead>
 <tbody>
 {{range .Findings}}<tr><td class="num">{{.N}}</td><td><span class="sev sev-{{.Severity}}">{{.Severity}}</span></td><td>{{.Kind}}</td><td class="where">{{.Where}}</td><td class="detail">{{.Message}}{{with .Values}}<div class="values">({{.}})</div>{{end}}{{with .Items}}<ul class="values">{{range .}}<li>{{.}}</li>{{end}}</ul>{{end}}</td></tr>
 {{end}}</tbody>
 </table></div>
-{{end}}
 </section>
+{{end}}
 
 <section>
 <h2>Plan view</h2>
 <figure class="plan">{{.Plan}}
-<figcaption>Readings (grey){{with .PlanShows}}{{if .Fits}}, fitted conductor{{if .Route}} and route{{end}} (blue){{if .Gap}}, the route dotted past a station whose fit is not used{{end}}{{end}}{{end}}{{if .Tracks}}, further conductors followed along the route (dark grey, each with its own line pattern, named in the legend){{end}}{{if .Findings}}, findings numbered as in the summary (triangles coloured by severity; a finding about the whole route's current, its steady fall, has none){{end}}{{if .Current}}; groups named in grey beside their readings (every few where they crowd){{if .PlanShows.Start}}, and chainage 0 ringed, with an arrow along increasing chainage{{end}}{{end}}.{{with .PlanShows}}{{if .Failed}} {{if .Fits}}No conductor is drawn at a group whose fit failed (no current found, or nothing fitted): its readings alone show where it was{{if .Route}}, and the route is drawn only between groups whose fits are used{{end}}.{{else}}No conductor is drawn: no group's fit found one.{{end}}{{end}}{{end}}{{with .Zoomed}} {{.}}{{end}} Coordinates: {{.FrameText}}.</figcaption>
+<figcaption>Readings (grey){{with .PlanShows}}{{if .Fits}}, fitted conductor{{if .Route}} and route{{end}} (blue){{if .Gap}}, the route dotted past a station whose fit is not used{{end}}{{end}}{{end}}{{if .Tracks}}, further conductors followed along the route (dark grey, each with its own line pattern, named in the legend){{end}}{{if .Findings}}, findings numbered as in the summary (triangles: a warning solid red, a caution half filled amber, a note hollow grey; a finding about the whole route's current, its steady fall, has none){{end}}{{if .Current}}; groups named in grey beside their readings (every few where they crowd){{if .PlanShows.Start}}, and chainage 0 ringed, with an arrow along increasing chainage{{end}}{{end}}.{{with .PlanShows}}{{if .Failed}} {{if .Fits}}No conductor is drawn at a group whose fit failed (no current found, or nothing fitted): its readings alone show where it was{{if .Route}}, and the route is drawn only between groups whose fits are used{{end}}.{{else}}No conductor is drawn: no group's fit found one.{{end}}{{end}}{{end}}{{with .Zoomed}} {{.}}{{end}} Coordinates: {{.FrameText}}.</figcaption>
 </figure>{{with .Insets}}
 <div class="insets">{{range .}}<figure class="inset">{{.SVG}}<figcaption>{{.Caption}}</figcaption></figure>{{end}}</div>{{end}}{{with .InsetsMore}}
 <p class="values">{{.}}</p>{{end}}
@@ -193,11 +201,12 @@ footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rul
 
 <section>
 <h2>Every group</h2>
+<p class="scroll-hint" aria-hidden="true">The table is wider than the screen: swipe it sideways for every column →</p>
 <div class="wide"><table class="groups">
 <thead><tr class="print-only"><th colspan="{{.GroupCols}}">{{.CautionShort}}</th></tr>
-<tr><th class="stick">Group</th><th class="stick stick2">Chainage (m)</th>{{if .D.Conductors}}<th>Conductor</th>{{end}}<th>Current (A)</th>{{if eq .D.Signal.Mode "ac"}}<th>Phase (°)</th>{{end}}<th>{{.CoverHead}}</th>{{if .DepthCol}}<th>{{.DepthHead}}</th>{{end}}<th>{{if .D.Frame.Origin}}Lat, lon (°){{else}}E, N (m){{end}}</th><th>Azimuth (°)</th><th>RMS (nT)</th><th>Readings</th><th class="fit">Fit</th></tr></thead>
+<tr><th class="stick">Group</th><th class="stick stick2">Chainage (m)</th>{{if .D.Conductors}}<th>Conductor</th>{{end}}<th>{{.CoverHead}}</th>{{if .DepthCol}}<th>{{.DepthHead}}</th>{{end}}<th>Current (A)</th>{{if eq .D.Signal.Mode "ac"}}<th>Phase (°)</th>{{end}}<th>{{if .D.Frame.Origin}}Lat, lon (°){{else}}E, N (m){{end}}</th><th>Azimuth (°)</th><th>RMS (nT)</th><th>Readings</th><th class="fit">Fit</th></tr></thead>
 <tbody>
-{{$ac := eq .D.Signal.Mode "ac"}}{{$tracks := .D.Conductors}}{{$depthCol := .DepthCol}}{{range .Groups}}<tr{{if .Bad}} class="bad"{{end}}><td class="stick">{{.Key}}</td><td class="num stick stick2">{{.Chainage}}</td>{{if $tracks}}<td class="num">{{range $i, $v := .Conductor}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{end}}<td class="num">{{range $i, $v := .Current}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{if $ac}}<td class="num">{{range $i, $v := .Phase}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{end}}<td class="num">{{range $i, $v := .Cover}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{if $depthCol}}<td class="num">{{range $i, $v := .Depth}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{end}}<td class="num">{{range $i, $v := .Position}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td><td class="num">{{range $i, $v := .Azimuth}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td><td class="num">{{.RMS}}</td><td class="num">{{.Points}}</td><td class="fit">{{if .StatusShort}}<span class="fit-detail">{{.Status}}</span><span class="print-only">{{.StatusShort}} (why: below the table)</span>{{else}}{{.Status}}{{end}}</td></tr>
+{{$ac := eq .D.Signal.Mode "ac"}}{{$tracks := .D.Conductors}}{{$depthCol := .DepthCol}}{{range .Groups}}<tr{{if .Bad}} class="bad"{{end}}><th scope="row" class="stick">{{.Key}}</th><td class="num stick stick2">{{.Chainage}}</td>{{if $tracks}}<td class="num">{{range $i, $v := .Conductor}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{end}}<td class="num">{{range $i, $v := .Cover}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{if $depthCol}}<td class="num">{{range $i, $v := .Depth}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{end}}<td class="num">{{range $i, $v := .Current}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{if $ac}}<td class="num">{{range $i, $v := .Phase}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td>{{end}}<td class="num">{{range $i, $v := .Position}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td><td class="num">{{range $i, $v := .Azimuth}}{{if $i}}<br>{{end}}{{$v}}{{end}}</td><td class="num">{{.RMS}}</td><td class="num">{{.Points}}</td><td class="fit">{{if .StatusShort}}<span class="fit-detail">{{.Status}}</span><span class="print-only">{{.StatusShort}} (why: below the table)</span>{{else}}{{.Status}}{{end}}</td></tr>
 {{end}}</tbody>
 </table></div>
 <p class="values">One line per fitted conductor, strongest first. {{if .D.Frame.Origin}}Lat, lon{{else}}E, N{{end}}: where each conductor passes closest to the centre of its group's readings (for an object, where it lies; for a pair of lines not told apart, the pair's centre){{if .D.Frame.Origin}}, WGS84 latitude and longitude in decimal degrees, negative south and west (results.csv and results.json give the local east and north too){{else}}, local east and north in metres as on the plan view{{end}}.{{if .D.Conductors}} Conductor: 1 for the one the route follows, 2, 3, ... for the further conductors followed along it, – for a source in no track. Chainage is along the route (conductor 1); a further conductor's own chainage, measured along it from its first station as its findings give it, follows its number in brackets where it differs.{{end}}{{if .PlanShows.Failed}} A fit that failed gives no current, depth, cover or place: its numbers mean nothing there (the Fit column says why; results.json keeps them with the fit's problem).{{end}} Uncertainties are one standard deviation from the reading noise only; they do not count the error of the model, which is often many times larger{{with .Scatter}} (see the realistic spread in the summary){{end}}. {{if .DepthCol}}Cover is the depth below the ground; the depth below the sensors is measured {{else}}Cover is the depth {{end}}{{.DepthRef}}.{{if .CoverNA}} *Cover n/a: the sensors' height above the ground was not given, so the depth of cover below the ground cannot be computed: it is less than the depth below the sensors by their height above the ground (give it with --sensor-height, or the ground level with --reference-z).{{end}}</p>
@@ -241,6 +250,7 @@ footer { margin-top: 2.5rem; padding-top: .5rem; border-top: 1px solid var(--rul
 {{range .D.Notes}}<li>{{.}}</li>
 {{end}}</ul>{{end}}
 </section>
+</main>
 
 <footer>Made by {{or .D.Tool.Name "undercurrent"}} {{.D.Tool.Version}}{{with .D.Tool.Build}} ({{.}}){{end}} · result document schema {{.D.SchemaVersion}}. Positions in metres, fields in nanotesla, currents in amperes{{if eq .D.Signal.Mode "ac"}} (RMS){{end}}.</footer>
 </body>

@@ -74,7 +74,7 @@ func TestBaseGapGroupSoundInReportTable(t *testing.T) {
 	}
 	// The Fit cell of each row of the "Every group" table.
 	cells := map[string]string{}
-	for _, r := range regexp.MustCompile(`<tr[^>]*><td class="stick">([^<]*)</td>.*?<td class="fit">(.*?)</td></tr>`).FindAllStringSubmatch(string(page), -1) {
+	for _, r := range regexp.MustCompile(`<tr[^>]*><th scope="row" class="stick">([^<]*)</th>.*?<td class="fit">(.*?)</td></tr>`).FindAllStringSubmatch(string(page), -1) {
 		cells[html.UnescapeString(r[1])] = html.UnescapeString(r[2])
 	}
 	if len(cells) != len(doc.Groups) {

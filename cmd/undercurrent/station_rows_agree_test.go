@@ -86,7 +86,7 @@ func locateOutputs(t *testing.T, path string, args ...string) *stationOutputs {
 	raw := string(read("report.html"))
 	o.page = html.UnescapeString(raw)
 	o.rows = map[string]string{}
-	for _, m := range regexp.MustCompile(`<tr[^>]*><td class="stick">([^<]*)</td>(.*?)</tr>`).FindAllStringSubmatch(raw, -1) {
+	for _, m := range regexp.MustCompile(`<tr[^>]*><th scope="row" class="stick">([^<]*)</th>(.*?)</tr>`).FindAllStringSubmatch(raw, -1) {
 		o.rows[html.UnescapeString(m[1])] = html.UnescapeString(m[2])
 	}
 	return o
