@@ -63,6 +63,9 @@ type arrowReader struct {
 type narrowColumn struct {
 	bits int
 	max  float64
+	// fixed is the step of a field column stored as integers (1) or
+	// decimals (10^-scale), in the column's unit; 0 otherwise.
+	fixed float64
 }
 
 func (r *arrowReader) plan() *plan                    { return r.pl }
@@ -768,7 +771,7 @@ func (r *arrowReader) floats(dst []float64, arr arrow.Array, c int) ([]float64, 
 	col := pl.header[pl.src[c]]
 	scale := pl.scale[c]
 	n := arr.Len()
-	if isPositionColumn(c) {
+	if isPositionColumn(c) || isFieldComponent(c) {
 		r.noteNarrow(arr, c)
 	}
 	for i := 0; i < n; i++ {
@@ -877,6 +880,16 @@ func (r *arrowReader) noteNarrow(arr arrow.Array, c int) {
 			}
 		}
 	}
+	if !isFieldComponent(c) {
+		return
+	}
+	switch dt := arr.DataType().(type) {
+	case *arrow.Int8Type, *arrow.Int16Type, *arrow.Int32Type, *arrow.Int64Type,
+		*arrow.Uint8Type, *arrow.Uint16Type, *arrow.Uint32Type, *arrow.Uint64Type:
+		nc.fixed = 1
+	case arrow.DecimalType:
+		nc.fixed = math.Pow(10, -float64(dt.GetScale()))
+	}
 }
 
 // floatStep is the spacing of binary floats with a bits-bit significand
@@ -897,6 +910,10 @@ func (r *arrowReader) notePositionSteps() {
 	pl := r.pl
 	for c := range r.narrow {
 		nc := r.narrow[c]
+		if isFieldComponent(c) {
+			r.noteFieldStep(c)
+			continue
+		}
 		if nc.bits == 0 || nc.max == 0 || pl.src[c] < 0 {
 			continue
 		}
@@ -930,4 +947,78 @@ func (r *arrowReader) notePositionSteps() {
 		}
 		pl.warn("%s: column %s is stored as %s floats: %s, coarser than the %g m a position needs: each reading's position is rounded by up to half a step, much alike along a traverse, which biases every traverse's fit the same way and beyond its uncertainties; store it as 64-bit floats, or subtract a site offset from projected coordinates before storing them", r.name, col, kind, what, positionStepLimit)
 	}
+}
+
+// fieldStepLimit is the coarsest step, nT, a field column's storage may
+// have without a warning: 1 nT, under the noise of a survey
+// magnetometer's readings (a couple of nT) and the fits' residuals.
+const fieldStepLimit = 1.0
+
+// isFieldComponent says whether canonical column c is a field component
+// that the fits read.
+func isFieldComponent(c int) bool { return c == cBx || c == cBy || c == cBz }
+
+// isFloat16 reports whether dt is a 16-bit float (Arrow halffloat), or
+// text or numbers dictionary-encoded as them.
+func isFloat16(dt arrow.DataType) bool {
+	if d, ok := dt.(*arrow.DictionaryType); ok {
+		dt = d.ValueType
+	}
+	return dt.ID() == arrow.FLOAT16
+}
+
+// float16FieldMsg refuses a field component stored as 16-bit floats. Their
+// 11-bit significand steps by 32 nT between 32,768 and 65,536 nT and by
+// 16 nT between 16,384 and 32,768 nT, so at any total field on Earth
+// (about 20,000 to 65,000 nT) each reading is rounded by up to 8 to 16 nT,
+// several times a survey magnetometer's noise, and fields over 65,504 nT
+// do not fit at all. In review the demo log so stored read with no sign
+// of trouble and moved a line's current by 18 of its uncertainties and
+// lost a line (and its caution) that the full log finds, so this is
+// refused rather than warned of: the readings cannot be recovered, and a
+// warning beside a changed answer is easy to miss.
+func float16FieldMsg(name string) string {
+	return fmt.Sprintf("the field %s is stored as 16-bit floats (Arrow halffloat), which step by 32 nT near 46,000 nT and 16 nT near 20,000 nT (their significand has 11 bits) and hold nothing over 65,504 in the column's unit: every reading is rounded by up to 16 nT, several times a magnetometer's noise, which moves the fits' currents and depths by many of their uncertainties (a review's 16-bit copy of the demo log moved a current by 18 uncertainties and lost a line); store the field as 32- or 64-bit floats (a 32-bit float steps by 0.004 nT near 46,000 nT)", name)
+}
+
+// noteFieldStep warns of field column c when its storage steps by more
+// than fieldStepLimit: 32-bit floats from 2^24 (about 16.8 million) nT up (never a
+// field on Earth in nT, but a count or a unit scaled up may be), integers
+// or decimals whose unit is coarser than 1 nT (counts of 2 nT, whole uT).
+// Such steps round every reading by up to half a step, noise the fits'
+// uncertainties do not know came from the file. (16-bit floats are
+// refused: float16FieldMsg.)
+func (r *arrowReader) noteFieldStep(c int) {
+	pl, nc := r.pl, r.narrow[c]
+	if pl.src[c] < 0 {
+		return
+	}
+	var step float64
+	var kind string
+	switch {
+	case nc.fixed > 0:
+		step, kind = nc.fixed*pl.scale[c], "integers"
+		if nc.fixed < 1 {
+			kind = fmt.Sprintf("decimals with %d digits after the point", int(math.Round(-math.Log10(nc.fixed))))
+		}
+	case nc.bits > 0 && nc.max > 0:
+		step = floatStep(nc.max, nc.bits) * pl.scale[c]
+		kind = fmt.Sprintf("%d-bit floats", map[int]int{24: 32, 11: 16}[nc.bits])
+	default:
+		return
+	}
+	if step <= fieldStepLimit {
+		return
+	}
+	col := quoteText(pl.header[pl.src[c]])
+	if h := pl.header[pl.src[c]]; h != canonNames[c] {
+		col += " (" + canonNames[c] + ")"
+	}
+	at := ""
+	if nc.fixed == 0 {
+		at = fmt.Sprintf(" at %.7g (its largest value, in %s)", nc.max, pl.unit[c])
+	} else if pl.scale[c] != 1 {
+		at = fmt.Sprintf(" (its unit: %s)", pl.unit[c])
+	}
+	pl.warn("%s: column %s is stored as %s, which step by %.3g nT%s, coarser than the %g nT a field reading needs: each reading is rounded by up to half a step, noise the fits take for the field's and may move their currents and depths beyond their uncertainties; store it as 64-bit floats or in a finer unit", r.name, col, kind, step, at, fieldStepLimit)
 }

@@ -587,6 +587,9 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 				return nil, &Error{File: file, Batch: -1, Column: header[p.src[c]],
 					Msg: fmt.Sprintf("type %s cannot be read as %s", types[p.src[c]], canonNames[c])}
 			}
+			if isFieldComponent(c) && isFloat16(types[p.src[c]]) {
+				return nil, &Error{File: file, Batch: -1, Column: header[p.src[c]], Msg: float16FieldMsg(canonNames[c])}
+			}
 		}
 	}
 
