@@ -987,6 +987,15 @@ func (p *plan) checkDuplicates(headerLine int) error {
 			if h != name {
 				named = fmt.Sprintf("named %q and %q", p.header[a], p.header[b])
 			}
+			if h != name {
+				// Names that differ in case or blanks: a mapping by the
+				// exact name chooses (find takes an exact match first),
+				// where renaming a Parquet field means rewriting the file.
+				cn := canonNames[c]
+				return &Error{File: p.file, Line: headerLine, Batch: -1,
+					Msg: fmt.Sprintf("%s %d and %d are both %s; %s would be read from %s %d and %s %d ignored: choose one by its exact name with a column mapping (on the command line --column %s or --column %s), or rename one of them",
+						what, a+1, b+1, named, cn, one, i+1, one, j+1, shellQuote(cn+"="+p.header[a]), shellQuote(cn+"="+p.header[b]))}
+			}
 			return &Error{File: p.file, Line: headerLine, Batch: -1,
 				Msg: fmt.Sprintf("%s %d and %d are both %s; %s would be read from %s %d and %s %d ignored, and no mapping by name can choose between them: rename one of them",
 					what, a+1, b+1, named, canonNames[c], one, i+1, one, j+1)}
