@@ -17,17 +17,20 @@ import (
 
 // plan is how one input's columns become canonical columns.
 type plan struct {
-	file     string
-	format   string
-	header   []string    // source column names
-	src      [nCanon]int // source column index, -1 when absent
-	unit     [nCanon]string
-	unitFrom [nCanon]string // where the unit came from (ColumnMapping.UnitFrom)
-	scale    [nCanon]float64
-	auto     [nCanon]bool   // found by name rather than by an explicit mapping
-	desc     [nCanon]string // how a column is derived, when more than a copy
-	geodetic bool           // positions come from lat/lon/height
-	hasPos   bool           // output has x, y, z
+	file   string
+	format string
+	header []string // source column names
+	// schemaTypes are the source columns' types (Arrow, Parquet); nil
+	// for text.
+	schemaTypes []arrow.DataType
+	src         [nCanon]int // source column index, -1 when absent
+	unit        [nCanon]string
+	unitFrom    [nCanon]string // where the unit came from (ColumnMapping.UnitFrom)
+	scale       [nCanon]float64
+	auto        [nCanon]bool   // found by name rather than by an explicit mapping
+	desc        [nCanon]string // how a column is derived, when more than a copy
+	geodetic    bool           // positions come from lat/lon/height
+	hasPos      bool           // output has x, y, z
 	// absent are the position columns (cX..cZ) the input does not have
 	// although it has others: they hold 0 for every row (MetaAbsent).
 	absent  []int
@@ -375,7 +378,7 @@ func (p *plan) mappings() []ColumnMapping {
 // headerLine is the line of a text file's header (0 when there is none),
 // for messages.
 func newPlan(file, format string, header []string, types []arrow.DataType, meta map[string]string, headerLine int, cfg *config) (*plan, error) {
-	p := &plan{file: file, format: format, header: header, cfg: cfg, meta: map[string]string{}}
+	p := &plan{file: file, format: format, header: header, schemaTypes: types, cfg: cfg, meta: map[string]string{}}
 	for i := range p.src {
 		p.src[i] = -1
 	}
