@@ -662,7 +662,7 @@ func (r *arrowReader) timeText(raw arrow.Array, i int) (string, bool) {
 	case cellText:
 		text = string(bytes.Trim(trimField([]byte(text)), " \t"))
 		return text, r.pl.textNaive(text)
-	case cellNumber:
+	case cellNumber, cellDuration:
 		return strconv.FormatFloat(v, 'f', -1, 64), false
 	case cellTimestamp:
 		tt, _ := raw.DataType().(*arrow.TimestampType)
@@ -685,7 +685,10 @@ func convertible(dt arrow.DataType, c int) bool {
 		arrow.UINT8, arrow.UINT16, arrow.UINT32, arrow.UINT64,
 		arrow.DECIMAL32, arrow.DECIMAL64, arrow.DECIMAL128, arrow.DECIMAL256:
 		return true
-	case arrow.TIMESTAMP:
+	case arrow.TIMESTAMP, arrow.DATE64, arrow.DURATION:
+		// date64: milliseconds since the Unix epoch (as older JavaScript
+		// Arrow writes a Date); duration: time since the log's start, read
+		// as relative seconds like a text log's relative times.
 		return c == cTime
 	case arrow.NULL:
 		return c != cTime
@@ -705,6 +708,7 @@ type cellKind int
 const (
 	cellNumber    cellKind = iota // v in the column's unit
 	cellTimestamp                 // v in Unix seconds, whatever the unit
+	cellDuration                  // v in seconds since some start, whatever the unit
 	cellText                      // text, to be parsed
 	cellNull                      // a null (in the column or its dictionary)
 	cellBadType                   // a type that cannot be read
@@ -742,6 +746,10 @@ func cell(arr arrow.Array, i int) (v float64, text string, k cellKind) {
 		return float64(a.Value(i)), "", cellNumber
 	case *array.Timestamp:
 		return timestampSeconds(int64(a.Value(i)), a.DataType().(*arrow.TimestampType).Unit), "", cellTimestamp
+	case *array.Date64:
+		return timestampSeconds(int64(a.Value(i)), arrow.Millisecond), "", cellTimestamp
+	case *array.Duration:
+		return timestampSeconds(int64(a.Value(i)), a.DataType().(*arrow.DurationType).Unit), "", cellDuration
 	case *array.String:
 		return 0, a.Value(i), cellText
 	case *array.LargeString:
@@ -796,7 +804,7 @@ func (r *arrowReader) floats(dst []float64, arr arrow.Array, c int) ([]float64, 
 			continue
 		case cellBadType:
 			return nil, rowErr(r.name, r.batch, i, col, "", "type %s cannot be read as %s", arr.DataType(), canonNames[c])
-		case cellTimestamp:
+		case cellTimestamp, cellDuration:
 			s = 1
 		case cellText:
 			var ok bool
