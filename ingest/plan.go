@@ -500,6 +500,28 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 		p.src[cTime] = -1
 	}
 
+	// A log without a time column by name whose schema has one timestamp
+	// column (ts, utc_time, gps_time, event_time) takes it, with a note:
+	// its type says what it holds, and before, such a log was refused,
+	// or read without time where none is needed, in silence.
+	if _, mapped := cfg.mapping[cTime]; p.src[cTime] < 0 && !mapped && types != nil {
+		lone := -1
+		for i, dt := range types {
+			if dt.ID() != arrow.TIMESTAMP && dt.ID() != arrow.DATE64 {
+				continue
+			}
+			if lone >= 0 {
+				lone = -2
+				break
+			}
+			lone = i
+		}
+		if lone >= 0 && !taken[lone] {
+			p.src[cTime], p.auto[cTime], taken[lone] = lone, true, true
+			p.warn("%s: no column is named as the time, and column %s, of type %s, is the only timestamp column: it is read as the time (if it is not, give the time column with a column mapping, on the command line --column time=NAME)", file, quoteText(header[lone]), types[lone])
+		}
+	}
+
 	// Required columns.
 	var missing []string
 	p.noTime = p.src[cTime] < 0 && cfg.timeOptional
