@@ -58,11 +58,16 @@ type arrowReader struct {
 	fraction      bool // a time with a fraction of a second was read
 	prevT         float64
 	prevG         string
-	rewind        func() error
-	ahead         []arrow.RecordBatch
-	held          arrow.RecordBatch
-	srcDone       bool  // the stream's src ended while read ahead
-	srcErr        error // with this error
+	// flat is the schema with struct columns flattened (flattenSchema),
+	// nil when it has none; flatLast the last batch flattened, valid
+	// until the next read like the source's own.
+	flat     *arrow.Schema
+	flatLast arrow.RecordBatch
+	rewind   func() error
+	ahead    []arrow.RecordBatch
+	held     arrow.RecordBatch
+	srcDone  bool  // the stream's src ended while read ahead
+	srcErr   error // with this error
 }
 
 // narrowColumn is a position column stored as 32- or 16-bit floats: bits
@@ -87,6 +92,10 @@ func (r *arrowReader) Release() {
 		r.cur = nil
 	}
 	r.releaseAhead()
+	if r.flatLast != nil {
+		r.flatLast.Release()
+		r.flatLast = nil
+	}
 	if r.err == nil && !r.ended {
 		r.err = releasedErr(r.name)
 	}
@@ -98,6 +107,7 @@ func (r *arrowReader) Release() {
 }
 
 func newArrowReaderFor(name, format string, sc *arrow.Schema, cfg *config) (*arrowReader, error) {
+	sc, nested := flattenSchema(sc) // struct columns read by dotted names
 	header := make([]string, sc.NumFields())
 	types := make([]arrow.DataType, sc.NumFields())
 	for i, f := range sc.Fields() {
@@ -119,7 +129,11 @@ func newArrowReaderFor(name, format string, sc *arrow.Schema, cfg *config) (*arr
 			pl.naiveTime(name, fmt.Sprintf("timestamps of type %s without a time zone", ts), true)
 		}
 	}
-	return &arrowReader{name: name, pl: pl, cfg: cfg, last: math.NaN()}, nil
+	r := &arrowReader{name: name, pl: pl, cfg: cfg, last: math.NaN()}
+	if nested {
+		r.flat = sc
+	}
+	return r, nil
 }
 
 func newArrowFileReader(name string, f *os.File, cfg *config) (_ Reader, err error) {
@@ -523,7 +537,19 @@ func (r *arrowReader) readSrc() (rec arrow.RecordBatch, err error) {
 			rec, err = nil, fmt.Errorf("%v", p)
 		}
 	}()
-	return r.src()
+	rec, err = r.src()
+	if r.flat == nil {
+		return rec, err
+	}
+	if r.flatLast != nil {
+		r.flatLast.Release()
+		r.flatLast = nil
+	}
+	if rec != nil {
+		r.flatLast = flattenBatch(r.cfg.mem, rec, r.flat)
+		rec = r.flatLast
+	}
+	return rec, err
 }
 
 // convert canonicalises one input batch and checks it.
