@@ -543,7 +543,7 @@ func DemodulateColumns(c *Columns, set *DemodSettings) (*DemodResult, error) {
 		if maxH > 1 {
 			what = fmt.Sprintf("%g Hz (harmonic %d of %g Hz)", float64(maxH)*ds.Freq, maxH, ds.Freq)
 		}
-		return nil, fmt.Errorf("calibrate: demodulate: %s is at or above the Nyquist frequency %.4g Hz of the log", what, fs/2)
+		return nil, fmt.Errorf("calibrate: demodulate: %s is at or above the Nyquist frequency %.4g Hz of the log%s", what, fs/2, c.repeatedTimes())
 	}
 	if ds.Window == 0 {
 		ds.Window = 10 / ds.Freq
@@ -2004,4 +2004,23 @@ func halfTravel(c *Columns, lo, hi int, mean [3]float64) [3]float64 {
 		out[k] = stx / stt * half
 	}
 	return out
+}
+
+// repeatedTimes words, for the Nyquist refusal, times stored more coarsely
+// than the readings come: when most readings have the time of the
+// reading before them in their group (a 500 Hz log whose times were cast
+// to whole seconds, as a review found), the sample rate read from the
+// steps between stamps is the stamps', and "0.5 Hz" alone read as a log
+// sampled at 1 Hz. "" otherwise.
+func (c *Columns) repeatedTimes() string {
+	n, rep := len(c.Time), 0
+	for i := 1; i < n; i++ {
+		if c.Time[i] == c.Time[i-1] && (c.Group == nil || c.Group[i] == c.Group[i-1]) {
+			rep++
+		}
+	}
+	if n < 10 || 2*rep <= n {
+		return ""
+	}
+	return fmt.Sprintf(" as read from its time stamps, but %d of its %d readings have the time of the reading before them, about %.0f readings a stamp: its times are stored more coarsely than the readings come (whole seconds?), and the readings' own rate is higher; store the times to milliseconds or finer", rep, n, float64(n)/float64(n-rep))
 }

@@ -50,11 +50,24 @@ type arrowReader struct {
 	// Parquet: findOrigin reads ahead and starts again); nil for a
 	// stream, whose batches read ahead are kept in ahead, retained, and
 	// given out first, each released at the next read.
-	rewind  func() error
-	ahead   []arrow.RecordBatch
-	held    arrow.RecordBatch
-	srcDone bool  // the stream's src ended while read ahead
-	srcErr  error // with this error
+	// rows counts the readings read, repeats those whose time is that of
+	// the reading before in the same group (prevT, prevG): most of them
+	// repeating is times stored more coarsely than the readings come
+	// (noteRepeatedTimes).
+	rows, repeats int
+	fraction      bool // a time with a fraction of a second was read
+	prevT         float64
+	prevG         string
+	// flat is the schema with struct columns flattened (flattenSchema),
+	// nil when it has none; flatLast the last batch flattened, valid
+	// until the next read like the source's own.
+	flat     *arrow.Schema
+	flatLast arrow.RecordBatch
+	rewind   func() error
+	ahead    []arrow.RecordBatch
+	held     arrow.RecordBatch
+	srcDone  bool  // the stream's src ended while read ahead
+	srcErr   error // with this error
 }
 
 // narrowColumn is a position column stored as 32- or 16-bit floats: bits
@@ -63,6 +76,9 @@ type arrowReader struct {
 type narrowColumn struct {
 	bits int
 	max  float64
+	// fixed is the step of a field column stored as integers (1) or
+	// decimals (10^-scale), in the column's unit; 0 otherwise.
+	fixed float64
 }
 
 func (r *arrowReader) plan() *plan                    { return r.pl }
@@ -76,6 +92,10 @@ func (r *arrowReader) Release() {
 		r.cur = nil
 	}
 	r.releaseAhead()
+	if r.flatLast != nil {
+		r.flatLast.Release()
+		r.flatLast = nil
+	}
 	if r.err == nil && !r.ended {
 		r.err = releasedErr(r.name)
 	}
@@ -87,6 +107,7 @@ func (r *arrowReader) Release() {
 }
 
 func newArrowReaderFor(name, format string, sc *arrow.Schema, cfg *config) (*arrowReader, error) {
+	sc, nested := flattenSchema(sc) // struct columns read by dotted names
 	header := make([]string, sc.NumFields())
 	types := make([]arrow.DataType, sc.NumFields())
 	for i, f := range sc.Fields() {
@@ -108,7 +129,11 @@ func newArrowReaderFor(name, format string, sc *arrow.Schema, cfg *config) (*arr
 			pl.naiveTime(name, fmt.Sprintf("timestamps of type %s without a time zone", ts), true)
 		}
 	}
-	return &arrowReader{name: name, pl: pl, cfg: cfg, last: math.NaN()}, nil
+	r := &arrowReader{name: name, pl: pl, cfg: cfg, last: math.NaN()}
+	if nested {
+		r.flat = sc
+	}
+	return r, nil
 }
 
 func newArrowFileReader(name string, f *os.File, cfg *config) (_ Reader, err error) {
@@ -338,6 +363,7 @@ func (r *arrowReader) Next() bool {
 			r.pl.finishGroups()
 			r.pl.finishNoFix()
 			r.notePositionSteps()
+			r.noteRepeatedTimes()
 			r.Release()
 			return false
 		}
@@ -383,6 +409,7 @@ func (r *arrowReader) Next() bool {
 		if !r.pl.orderAll && !r.pl.noTime {
 			r.pl.noteClockChange(out.Column(0).(*array.Float64).Float64Values(), r.name)
 		}
+		r.countRepeats(out)
 		r.cur = out
 		return true
 	}
@@ -510,7 +537,19 @@ func (r *arrowReader) readSrc() (rec arrow.RecordBatch, err error) {
 			rec, err = nil, fmt.Errorf("%v", p)
 		}
 	}()
-	return r.src()
+	rec, err = r.src()
+	if r.flat == nil {
+		return rec, err
+	}
+	if r.flatLast != nil {
+		r.flatLast.Release()
+		r.flatLast = nil
+	}
+	if rec != nil {
+		r.flatLast = flattenBatch(r.cfg.mem, rec, r.flat)
+		rec = r.flatLast
+	}
+	return rec, err
 }
 
 // convert canonicalises one input batch and checks it.
@@ -649,7 +688,7 @@ func (r *arrowReader) timeText(raw arrow.Array, i int) (string, bool) {
 	case cellText:
 		text = string(bytes.Trim(trimField([]byte(text)), " \t"))
 		return text, r.pl.textNaive(text)
-	case cellNumber:
+	case cellNumber, cellDuration:
 		return strconv.FormatFloat(v, 'f', -1, 64), false
 	case cellTimestamp:
 		tt, _ := raw.DataType().(*arrow.TimestampType)
@@ -672,7 +711,10 @@ func convertible(dt arrow.DataType, c int) bool {
 		arrow.UINT8, arrow.UINT16, arrow.UINT32, arrow.UINT64,
 		arrow.DECIMAL32, arrow.DECIMAL64, arrow.DECIMAL128, arrow.DECIMAL256:
 		return true
-	case arrow.TIMESTAMP:
+	case arrow.TIMESTAMP, arrow.DATE64, arrow.DURATION:
+		// date64: milliseconds since the Unix epoch (as older JavaScript
+		// Arrow writes a Date); duration: time since the log's start, read
+		// as relative seconds like a text log's relative times.
 		return c == cTime
 	case arrow.NULL:
 		return c != cTime
@@ -692,6 +734,7 @@ type cellKind int
 const (
 	cellNumber    cellKind = iota // v in the column's unit
 	cellTimestamp                 // v in Unix seconds, whatever the unit
+	cellDuration                  // v in seconds since some start, whatever the unit
 	cellText                      // text, to be parsed
 	cellNull                      // a null (in the column or its dictionary)
 	cellBadType                   // a type that cannot be read
@@ -729,6 +772,10 @@ func cell(arr arrow.Array, i int) (v float64, text string, k cellKind) {
 		return float64(a.Value(i)), "", cellNumber
 	case *array.Timestamp:
 		return timestampSeconds(int64(a.Value(i)), a.DataType().(*arrow.TimestampType).Unit), "", cellTimestamp
+	case *array.Date64:
+		return timestampSeconds(int64(a.Value(i)), arrow.Millisecond), "", cellTimestamp
+	case *array.Duration:
+		return timestampSeconds(int64(a.Value(i)), a.DataType().(*arrow.DurationType).Unit), "", cellDuration
 	case *array.String:
 		return 0, a.Value(i), cellText
 	case *array.LargeString:
@@ -768,7 +815,7 @@ func (r *arrowReader) floats(dst []float64, arr arrow.Array, c int) ([]float64, 
 	col := pl.header[pl.src[c]]
 	scale := pl.scale[c]
 	n := arr.Len()
-	if isPositionColumn(c) {
+	if isPositionColumn(c) || isFieldComponent(c) {
 		r.noteNarrow(arr, c)
 	}
 	for i := 0; i < n; i++ {
@@ -783,7 +830,7 @@ func (r *arrowReader) floats(dst []float64, arr arrow.Array, c int) ([]float64, 
 			continue
 		case cellBadType:
 			return nil, rowErr(r.name, r.batch, i, col, "", "type %s cannot be read as %s", arr.DataType(), canonNames[c])
-		case cellTimestamp:
+		case cellTimestamp, cellDuration:
 			s = 1
 		case cellText:
 			var ok bool
@@ -877,6 +924,16 @@ func (r *arrowReader) noteNarrow(arr arrow.Array, c int) {
 			}
 		}
 	}
+	if !isFieldComponent(c) {
+		return
+	}
+	switch dt := arr.DataType().(type) {
+	case *arrow.Int8Type, *arrow.Int16Type, *arrow.Int32Type, *arrow.Int64Type,
+		*arrow.Uint8Type, *arrow.Uint16Type, *arrow.Uint32Type, *arrow.Uint64Type:
+		nc.fixed = 1
+	case arrow.DecimalType:
+		nc.fixed = math.Pow(10, -float64(dt.GetScale()))
+	}
 }
 
 // floatStep is the spacing of binary floats with a bits-bit significand
@@ -897,6 +954,10 @@ func (r *arrowReader) notePositionSteps() {
 	pl := r.pl
 	for c := range r.narrow {
 		nc := r.narrow[c]
+		if isFieldComponent(c) {
+			r.noteFieldStep(c)
+			continue
+		}
 		if nc.bits == 0 || nc.max == 0 || pl.src[c] < 0 {
 			continue
 		}
@@ -930,4 +991,152 @@ func (r *arrowReader) notePositionSteps() {
 		}
 		pl.warn("%s: column %s is stored as %s floats: %s, coarser than the %g m a position needs: each reading's position is rounded by up to half a step, much alike along a traverse, which biases every traverse's fit the same way and beyond its uncertainties; store it as 64-bit floats, or subtract a site offset from projected coordinates before storing them", r.name, col, kind, what, positionStepLimit)
 	}
+}
+
+// fieldStepLimit is the coarsest step, nT, a field column's storage may
+// have without a warning: 1 nT, under the noise of a survey
+// magnetometer's readings (a couple of nT) and the fits' residuals.
+const fieldStepLimit = 1.0
+
+// isFieldComponent says whether canonical column c is a field component
+// that the fits read.
+func isFieldComponent(c int) bool { return c == cBx || c == cBy || c == cBz }
+
+// isFloat16 reports whether dt is a 16-bit float (Arrow halffloat), or
+// text or numbers dictionary-encoded as them.
+func isFloat16(dt arrow.DataType) bool {
+	if d, ok := dt.(*arrow.DictionaryType); ok {
+		dt = d.ValueType
+	}
+	return dt.ID() == arrow.FLOAT16
+}
+
+// float16FieldMsg refuses a field component stored as 16-bit floats. Their
+// 11-bit significand steps by 32 nT between 32,768 and 65,536 nT and by
+// 16 nT between 16,384 and 32,768 nT, so at any total field on Earth
+// (about 20,000 to 65,000 nT) each reading is rounded by up to 8 to 16 nT,
+// several times a survey magnetometer's noise, and fields over 65,504 nT
+// do not fit at all. In review the demo log so stored read with no sign
+// of trouble and moved a line's current by 18 of its uncertainties and
+// lost a line (and its caution) that the full log finds, so this is
+// refused rather than warned of: the readings cannot be recovered, and a
+// warning beside a changed answer is easy to miss.
+func float16FieldMsg(name string) string {
+	return fmt.Sprintf("the field %s is stored as 16-bit floats (Arrow halffloat), which step by 32 nT near 46,000 nT and 16 nT near 20,000 nT (their significand has 11 bits) and hold nothing over 65,504 in the column's unit: every reading is rounded by up to 16 nT, several times a magnetometer's noise, which moves the fits' currents and depths by many of their uncertainties (a review's 16-bit copy of the demo log moved a current by 18 uncertainties and lost a line); store the field as 32- or 64-bit floats (a 32-bit float steps by 0.004 nT near 46,000 nT)", name)
+}
+
+// noteFieldStep warns of field column c when its storage steps by more
+// than fieldStepLimit: 32-bit floats from 2^24 (about 16.8 million) nT up (never a
+// field on Earth in nT, but a count or a unit scaled up may be), integers
+// or decimals whose unit is coarser than 1 nT (counts of 2 nT, whole uT).
+// Such steps round every reading by up to half a step, noise the fits'
+// uncertainties do not know came from the file. (16-bit floats are
+// refused: float16FieldMsg.)
+func (r *arrowReader) noteFieldStep(c int) {
+	pl, nc := r.pl, r.narrow[c]
+	if pl.src[c] < 0 {
+		return
+	}
+	var step float64
+	var kind string
+	switch {
+	case nc.fixed > 0:
+		step, kind = nc.fixed*pl.scale[c], "integers"
+		if nc.fixed < 1 {
+			kind = fmt.Sprintf("decimals with %d digits after the point", int(math.Round(-math.Log10(nc.fixed))))
+		}
+	case nc.bits > 0 && nc.max > 0:
+		step = floatStep(nc.max, nc.bits) * pl.scale[c]
+		kind = fmt.Sprintf("%d-bit floats", map[int]int{24: 32, 11: 16}[nc.bits])
+	default:
+		return
+	}
+	if step <= fieldStepLimit {
+		return
+	}
+	col := quoteText(pl.header[pl.src[c]])
+	if h := pl.header[pl.src[c]]; h != canonNames[c] {
+		col += " (" + canonNames[c] + ")"
+	}
+	at := ""
+	if nc.fixed == 0 {
+		at = fmt.Sprintf(" at %.7g (its largest value, in %s)", nc.max, pl.unit[c])
+	} else if pl.scale[c] != 1 {
+		at = fmt.Sprintf(" (its unit: %s)", pl.unit[c])
+	}
+	pl.warn("%s: column %s is stored as %s, which step by %.3g nT%s, coarser than the %g nT a field reading needs: each reading is rounded by up to half a step, noise the fits take for the field's and may move their currents and depths beyond their uncertainties; store it as 64-bit floats or in a finer unit", r.name, col, kind, step, at, fieldStepLimit)
+}
+
+// countRepeats counts the readings of out whose time is that of the
+// reading before them in the same group (rows in file order).
+func (r *arrowReader) countRepeats(out arrow.RecordBatch) {
+	if r.pl.noTime {
+		return
+	}
+	t := out.Column(0).(*array.Float64).Float64Values()
+	var g *array.String
+	if gi := r.groupIndex(); gi >= 0 {
+		g, _ = out.Column(gi).(*array.String)
+	}
+	for i, v := range t {
+		gr := ""
+		if g != nil {
+			gr = g.Value(i)
+		}
+		if v != math.Trunc(v) && v == v {
+			r.fraction = true
+		}
+		if r.rows > 0 && v == r.prevT && gr == r.prevG {
+			r.repeats++
+		}
+		r.rows++
+		r.prevT = v
+		if g != nil && gr != r.prevG {
+			r.prevG = strings.Clone(gr)
+		}
+	}
+}
+
+// noteRepeatedTimes warns when most readings have the time of the reading
+// before them in their group: the times are stored more coarsely than the
+// readings come (a writer that cast them to timestamp[s], as a review
+// found: 154,690 of 155,031 readings of a 500 Hz log repeated a whole
+// second), so the sample rate read from them is the stamps', AC
+// demodulation refuses the log with a Nyquist frequency of 0.5 Hz and
+// gaps are missed. The warning names the column, its type, the count and
+// how many readings share a stamp.
+func (r *arrowReader) noteRepeatedTimes() {
+	pl := r.pl
+	if pl.noTime || pl.src[cTime] < 0 || r.rows < 10 || 2*r.repeats <= r.rows {
+		return
+	}
+	typ := ""
+	if pl.schemaTypes != nil {
+		typ = pl.schemaTypes[pl.src[cTime]].String()
+	}
+	pl.warn("%s", RepeatedTimesText(r.name, pl.header[pl.src[cTime]], typ, r.repeats, r.rows, !r.fraction))
+}
+
+// RepeatedTimesText words the warning of repeated times: repeats of rows
+// readings of log name have the time of the reading before them in their
+// group, in time column col of storage type typ ("" when the file states
+// none); whole: every time is a whole second.
+func RepeatedTimesText(name, col, typ string, repeats, rows int, whole bool) string {
+	of := ""
+	if typ != "" {
+		of = " (" + typ + ")"
+	}
+	what := "the times are stored more coarsely than the readings come"
+	finer := "finer"
+	if whole {
+		what = "every time is a whole second, stored more coarsely than the readings come"
+		finer = "milliseconds or finer"
+		if strings.HasPrefix(typ, "timestamp[s") {
+			finer += " (timestamp[ms] or finer: timestamp[s] holds whole seconds)"
+		} else if typ != "" {
+			finer += " (a cast or conversion to whole seconds on the way drops the fraction)"
+		}
+	}
+	return fmt.Sprintf("%s: column %s%s: %d of %d readings have the time of the reading before them in their group, about %.0f readings a time stamp: %s, so the sample rate read from them is the stamps' (and AC demodulation refuses the log as sampled below the signal's frequency) and gaps between readings are not seen; store the times to %s",
+		name, quoteText(col), of, repeats, rows, float64(rows)/float64(rows-repeats), what, finer)
 }

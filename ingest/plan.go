@@ -17,17 +17,20 @@ import (
 
 // plan is how one input's columns become canonical columns.
 type plan struct {
-	file     string
-	format   string
-	header   []string    // source column names
-	src      [nCanon]int // source column index, -1 when absent
-	unit     [nCanon]string
-	unitFrom [nCanon]string // where the unit came from (ColumnMapping.UnitFrom)
-	scale    [nCanon]float64
-	auto     [nCanon]bool   // found by name rather than by an explicit mapping
-	desc     [nCanon]string // how a column is derived, when more than a copy
-	geodetic bool           // positions come from lat/lon/height
-	hasPos   bool           // output has x, y, z
+	file   string
+	format string
+	header []string // source column names
+	// schemaTypes are the source columns' types (Arrow, Parquet); nil
+	// for text.
+	schemaTypes []arrow.DataType
+	src         [nCanon]int // source column index, -1 when absent
+	unit        [nCanon]string
+	unitFrom    [nCanon]string // where the unit came from (ColumnMapping.UnitFrom)
+	scale       [nCanon]float64
+	auto        [nCanon]bool   // found by name rather than by an explicit mapping
+	desc        [nCanon]string // how a column is derived, when more than a copy
+	geodetic    bool           // positions come from lat/lon/height
+	hasPos      bool           // output has x, y, z
 	// absent are the position columns (cX..cZ) the input does not have
 	// although it has others: they hold 0 for every row (MetaAbsent).
 	absent  []int
@@ -375,7 +378,7 @@ func (p *plan) mappings() []ColumnMapping {
 // headerLine is the line of a text file's header (0 when there is none),
 // for messages.
 func newPlan(file, format string, header []string, types []arrow.DataType, meta map[string]string, headerLine int, cfg *config) (*plan, error) {
-	p := &plan{file: file, format: format, header: header, cfg: cfg, meta: map[string]string{}}
+	p := &plan{file: file, format: format, header: header, schemaTypes: types, cfg: cfg, meta: map[string]string{}}
 	for i := range p.src {
 		p.src[i] = -1
 	}
@@ -497,6 +500,28 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 		p.src[cTime] = -1
 	}
 
+	// A log without a time column by name whose schema has one timestamp
+	// column (ts, utc_time, gps_time, event_time) takes it, with a note:
+	// its type says what it holds, and before, such a log was refused,
+	// or read without time where none is needed, in silence.
+	if _, mapped := cfg.mapping[cTime]; p.src[cTime] < 0 && !mapped && types != nil {
+		lone := -1
+		for i, dt := range types {
+			if dt.ID() != arrow.TIMESTAMP && dt.ID() != arrow.DATE64 {
+				continue
+			}
+			if lone >= 0 {
+				lone = -2
+				break
+			}
+			lone = i
+		}
+		if lone >= 0 && !taken[lone] {
+			p.src[cTime], p.auto[cTime], taken[lone] = lone, true, true
+			p.warn("%s: no column is named as the time, and column %s, of type %s, is the only timestamp column: it is read as the time (if it is not, give the time column with a column mapping, on the command line --column time=NAME)", file, quoteText(header[lone]), types[lone])
+		}
+	}
+
 	// Required columns.
 	var missing []string
 	p.noTime = p.src[cTime] < 0 && cfg.timeOptional
@@ -586,6 +611,9 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 			if !convertible(types[p.src[c]], c) {
 				return nil, &Error{File: file, Batch: -1, Column: header[p.src[c]],
 					Msg: fmt.Sprintf("type %s cannot be read as %s", types[p.src[c]], canonNames[c])}
+			}
+			if isFieldComponent(c) && isFloat16(types[p.src[c]]) {
+				return nil, &Error{File: file, Batch: -1, Column: header[p.src[c]], Msg: float16FieldMsg(canonNames[c])}
 			}
 		}
 	}
@@ -983,6 +1011,15 @@ func (p *plan) checkDuplicates(headerLine int) error {
 			named := fmt.Sprintf("named %q", name)
 			if h != name {
 				named = fmt.Sprintf("named %q and %q", p.header[a], p.header[b])
+			}
+			if h != name {
+				// Names that differ in case or blanks: a mapping by the
+				// exact name chooses (find takes an exact match first),
+				// where renaming a Parquet field means rewriting the file.
+				cn := canonNames[c]
+				return &Error{File: p.file, Line: headerLine, Batch: -1,
+					Msg: fmt.Sprintf("%s %d and %d are both %s; %s would be read from %s %d and %s %d ignored: choose one by its exact name with a column mapping (on the command line --column %s or --column %s), or rename one of them",
+						what, a+1, b+1, named, cn, one, i+1, one, j+1, shellQuote(cn+"="+p.header[a]), shellQuote(cn+"="+p.header[b]))}
 			}
 			return &Error{File: p.file, Line: headerLine, Batch: -1,
 				Msg: fmt.Sprintf("%s %d and %d are both %s; %s would be read from %s %d and %s %d ignored, and no mapping by name can choose between them: rename one of them",
