@@ -34,6 +34,10 @@ type Problem struct {
 	// L/h = 0.2, where Simpson's rule at the same cost would leave 1.3e-5; see
 	// the package documentation). Nil means point readings.
 	Travel [][3]float64
+	// Times, when not nil, gives each DC reading's time in seconds (any origin;
+	// NaN for none). Along a single traverse the automatic count then checks
+	// for a current changing in time while it was walked (CurrentRampNote).
+	Times []float64
 }
 
 // Subset returns a problem holding the readings i of p for which keep(i)
@@ -55,6 +59,9 @@ func (p *Problem) Subset(keep func(i int) bool) *Problem {
 		}
 		if p.Travel != nil {
 			q.Travel = append(q.Travel, p.Travel[i])
+		}
+		if len(p.Times) == len(p.Points) {
+			q.Times = append(q.Times, p.Times[i])
 		}
 	}
 	return q
@@ -466,6 +473,11 @@ type Result struct {
 	// serialSandwich, each parameter widened by its own factor, none
 	// below the covariance under independence. Both 0 for AC.
 	SerialCorrelation, SigmaWidening float64
+	// CurrentRamp is, for a DC traverse fit with CurrentRampNote, the
+	// relative change of the line's current over the traverse (the ramp's
+	// rate times the traverse's time span over the mean current), and
+	// CurrentRampSigma its sigma; 0 otherwise.
+	CurrentRamp, CurrentRampSigma float64
 	// Notes are cautions about the whole fit.
 	Notes []string
 }

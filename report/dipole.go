@@ -1393,7 +1393,7 @@ func without(p *inverse.Problem, r *inverse.Result, j int, pos [3]float64) (*inv
 	// The object's field as the fits model every reading: averaged along the
 	// reading's path when the readings are path averages (Problem.Travel),
 	// which q keeps so that the conductors are refitted the same way.
-	q := &inverse.Problem{Points: p.Points, Travel: p.Travel, Sigma: p.Sigma}
+	q := &inverse.Problem{Points: p.Points, Travel: p.Travel, Times: p.Times, Sigma: p.Sigma}
 	basis, err := inverse.ReadingBasis(p, inverse.Dipole{Pos: pos})
 	if err != nil {
 		// The object sits on a reading's path: no finite field to remove.

@@ -629,6 +629,11 @@ func (g *group) problem(ac bool, noise float64) *inverse.Problem {
 		}
 	} else {
 		p.Fields = g.fields
+		// The readings' times let the fit check for a current changing
+		// while the traverse was walked (inverse.CurrentRampNote).
+		if len(g.stamps) == len(g.points) {
+			p.Times = g.stamps
+		}
 	}
 	return p
 }
