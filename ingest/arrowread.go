@@ -787,12 +787,13 @@ func (r *arrowReader) floats(dst []float64, arr arrow.Array, c int) ([]float64, 
 			s = 1
 		case cellText:
 			var ok bool
+			var badDate string
 			b := []byte(text)
 			t := trimField(b)
 			v, ok = parseNumber(t)
 			if !ok && c == cTime {
 				var zoned bool
-				if v, zoned, ok = parseTimestampZone(t); ok {
+				if v, zoned, ok, badDate = r.cfg.timeText.parse(t); ok {
 					s = 1
 					if !zoned {
 						pl.naiveTime(r.name+batchRow(r.batch, i, r.start+int64(i)), "times such as "+quoteText(string(t)), false)
@@ -804,7 +805,7 @@ func (r *arrowReader) floats(dst []float64, arr arrow.Array, c int) ([]float64, 
 					return nil, rowErr(r.name, r.batch, i, col, text, "missing value %s; missing values are not allowed by default", quoteText(text))
 				}
 				if c == cTime {
-					return nil, rowErr(r.name, r.batch, i, col, text, "%s is not a number or an RFC 3339 time%s", quoteText(text), timeHint(t))
+					return nil, rowErr(r.name, r.batch, i, col, text, "%s is not a number or an RFC 3339 time%s", quoteText(text), timeHint(t, r.cfg.dateOrder, badDate))
 				}
 				return nil, rowErr(r.name, r.batch, i, col, text, "%s is not a number%s", quoteText(text), markerHint(t))
 			}

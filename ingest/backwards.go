@@ -109,7 +109,7 @@ func (p *plan) textNaive(text string) bool {
 	if p.timeUTC {
 		return false
 	}
-	_, zoned, ok := parseTimestampZone([]byte(text))
+	_, zoned, ok, _ := p.cfg.timeText.parse([]byte(text))
 	return ok && !zoned
 }
 

@@ -859,6 +859,7 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch, plain bool) 
 			t = bytes.Trim(t, " \t")
 			var v float64
 			var ok bool
+			var badDate string
 			if r.decComma {
 				v, ok, num = parseDecimalComma(t, num)
 			} else {
@@ -867,7 +868,7 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch, plain bool) 
 			scale := u.scale
 			if !ok && u.c == cTime {
 				var zoned bool
-				if v, zoned, ok = parseTimestampZone(t); ok {
+				if v, zoned, ok, badDate = cfg.timeText.parse(t); ok {
 					scale = 1
 					if !zoned && rb.naiveLine == 0 {
 						rb.naiveLine, rb.naiveText = fieldLine(ln, fields[u.src], line), string(t)
@@ -888,11 +889,15 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch, plain bool) 
 					if err := r.repeatedHeader(ln, line); err != nil {
 						return err
 					}
-					what := "is not a number"
+					what, hint := "is not a number", ""
 					if u.c == cTime {
-						what = "is not a number or an RFC 3339 time" + timeHint(t)
+						hint = timeHint(t, cfg.dateOrder, badDate)
+						what = "is not a number or an RFC 3339 time" + hint
 					}
 					switch {
+					case hint != "":
+						// A time of day or a local date: its comma or
+						// points are not a number's.
 					case r.decComma && bytes.IndexByte(t, '.') >= 0:
 						// Only a point the setting rejects: "+0200" or a
 						// word held none, and the hint sent the user

@@ -46,7 +46,11 @@
 // timestamp type without a time zone, is read as UTC with a warning, since
 // local wall-clock times would be off by the zone's offset; a time column
 // whose unit is UTC (from its name, "Time (UTC)", "time_utc", or given)
-// says they are UTC and is not warned about.
+// says they are UTC and is not warned about. WithTimeOffset states the
+// fixed UTC offset of text times written without one: they are read as
+// that offset's local times, without the warning. WithDateOrder reads
+// dates in a local order, as 21/04/2026 09:40:00.000 (day first) or
+// 4/21/2026 9:40 (month first), which are refused without it.
 //
 // # Conversions
 //

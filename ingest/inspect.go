@@ -861,6 +861,13 @@ func turningTotalField(mags []float64, vecs [][3]float64) bool {
 	return math.Sqrt(diag) >= 0.3*mid
 }
 
+// TurningTotalField is turningTotalField for a caller outside the
+// package: mags are |B| of the readings looked at, vecs their field
+// vectors.
+func TurningTotalField(mags []float64, vecs [][3]float64) bool {
+	return turningTotalField(mags, vecs)
+}
+
 // steadySize reports whether the middle 80% of |B| (two readings or more)
 // span at most 10% of its median, as a total field's do.
 func steadySize(mags []float64) bool {

@@ -195,8 +195,17 @@ func parseTimestamp(b []byte) (float64, bool) {
 // parseTimestampZone is parseTimestamp that also tells whether the text
 // gives its zone (a UTC offset, "Z" or " UTC"); one without is read as UTC.
 func parseTimestampZone(b []byte) (v float64, zoned, ok bool) {
+	return parseTimestampIn(b, nil)
+}
+
+// parseTimestampIn is parseTimestampZone that reads a time written without
+// a zone at loc (nil: UTC); one with its offset keeps it.
+func parseTimestampIn(b []byte, loc *time.Location) (v float64, zoned, ok bool) {
 	if len(b) < 10 || b[4] != '-' {
 		return 0, false, false
+	}
+	if loc == nil {
+		loc = time.UTC
 	}
 	s := string(b)
 	utc := false
@@ -204,7 +213,7 @@ func parseTimestampZone(b []byte) (v float64, zoned, ok bool) {
 		s, utc = s[:len(s)-4]+"Z", true
 	}
 	for _, l := range timeLayouts {
-		if t, err := time.Parse(l.layout, s); err == nil {
+		if t, err := time.ParseInLocation(l.layout, s, loc); err == nil {
 			return unixSeconds(t), l.zoned || utc, true
 		}
 	}
@@ -214,8 +223,11 @@ func parseTimestampZone(b []byte) (v float64, zoned, ok bool) {
 // timeHint says what a time that is neither a number nor an RFC 3339
 // time looks like, for the message refusing it: a time of day without its
 // date (a logger's separate Date and Time columns), or a date written with
-// slashes (a spreadsheet's locale). "" when it looks like neither.
-func timeHint(b []byte) string {
+// slashes (a spreadsheet's locale), naming --date-order and, when the
+// value rules out all but one order, that order. order is the date order
+// given and bad why the value is no real date in it (timeText.parse).
+// "" when it looks like neither.
+func timeHint(b []byte, order DateOrder, bad string) string {
 	clock := func(b []byte) bool { // h:mm, hh:mm:ss, hh:mm:ss.fff
 		n := 0
 		for _, part := range bytes.Split(b, []byte(":")) {
@@ -234,10 +246,16 @@ func timeHint(b []byte) string {
 	if clock(b) {
 		return " (a time of day without its date? time needs the date too: join a separate date column to it, as in 2026-04-21T08:40:00Z)"
 	}
-	date, _, _ := bytes.Cut(b, []byte(" ")) // 21/04/2026, 4/21/2026 9:40, 21.04.2026 09:40:00
+	if parts, _, _, ok := localDate(b); ok {
+		if order != DateOrderNone {
+			return " (" + bad + ")"
+		}
+		return " (a date in a local order, as a spreadsheet writes them? give the order of day, month and year with --date-order dmy, mdy or ymd, or write times as RFC 3339, as in 2026-04-21T08:40:00Z" + orderAllowed(parts) + ")"
+	}
+	date, _, _ := bytes.Cut(b, []byte(" ")) // 21/04/26, 2026/4/21/9
 	for _, sep := range []byte{'/', '.'} {
-		if len(date) >= 6 && bytes.Count(date, []byte{sep}) == 2 && len(bytes.Trim(date, "0123456789"+string(sep))) == 0 {
-			return " (a date in a local order, day and month as a spreadsheet writes them? write times as RFC 3339, as in 2026-04-21T08:40:00Z)"
+		if len(date) >= 6 && bytes.Count(date, []byte{sep}) >= 2 && len(bytes.Trim(date, "0123456789"+string(sep))) == 0 {
+			return " (a date in a local order, as a spreadsheet writes them? --date-order dmy, mdy or ymd reads a day and month of one or two digits and a year of four, then a time h:mm or h:mm:ss on the 24-hour clock; or write times as RFC 3339, as in 2026-04-21T08:40:00Z)"
 		}
 	}
 	return ""

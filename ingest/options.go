@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"runtime"
 	"strings"
+	"time"
 
 	"github.com/apache/arrow-go/v18/arrow/memory"
 )
@@ -75,12 +76,16 @@ type config struct {
 	allowMissing      bool
 	timeOptional      bool // a log without a time column is read, its times NaN (WithTimeOptional)
 	allowBackwards    bool
-	groupOrder        bool // time must not go backwards within each group (WithTimeOrder)
-	allowUnterminated bool // Arrow IPC stream files may lack the end-of-stream marker
-	keepBaseline      bool // IAGA-2002: leave variation data in the baseline frame (WithIAGABaselineFrame)
-	noFrameWarning    bool // IAGA-2002: no warning that east and north are not geographic (WithIAGAFrameWarning)
-	noHeightWarning   bool // no warning that latitude and longitude come without a height (WithHeightWarning)
-	decimalComma      int  // CSV: 0 detect, 1 decimal commas, -1 decimal points (WithDecimalComma)
+	groupOrder        bool          // time must not go backwards within each group (WithTimeOrder)
+	allowUnterminated bool          // Arrow IPC stream files may lack the end-of-stream marker
+	keepBaseline      bool          // IAGA-2002: leave variation data in the baseline frame (WithIAGABaselineFrame)
+	noFrameWarning    bool          // IAGA-2002: no warning that east and north are not geographic (WithIAGAFrameWarning)
+	noHeightWarning   bool          // no warning that latitude and longitude come without a height (WithHeightWarning)
+	decimalComma      int           // CSV: 0 detect, 1 decimal commas, -1 decimal points (WithDecimalComma)
+	timeOffset        time.Duration // UTC offset of text times written without one (WithTimeOffset)
+	timeOffsetSet     bool
+	dateOrder         DateOrder // order of slash, dot and dash dates (WithDateOrder)
+	timeText          timeText  // how text times are read, from the three above (newConfig)
 	batchRows         int
 	chunkBytes        int
 	workers           int
@@ -108,6 +113,7 @@ func newConfig(opts []Option) *config {
 	if c.workers < 1 {
 		c.workers = 1
 	}
+	c.timeText = timeTextOf(c)
 	return c
 }
 

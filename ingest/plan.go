@@ -569,6 +569,10 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 	if p.src[cTime] >= 0 {
 		u := strings.ToLower(p.unit[cTime])
 		p.timeUTC = u == "utc" || u == "gmt" || strings.EqualFold(strings.TrimSpace(header[p.src[cTime]]), "utc")
+		if p.timeUTC && cfg.timeOffsetSet && cfg.timeOffset != 0 {
+			return nil, &Error{File: file, Batch: -1, Column: header[p.src[cTime]],
+				Msg: fmt.Sprintf("the time column says its times are UTC (its unit or name), and the time offset given (--time-offset %s) says they are local times: give one or the other", offsetText(cfg.timeOffset))}
+		}
 	}
 	if types != nil {
 		for c := 0; c < nCanon; c++ {

@@ -323,6 +323,13 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 	}
 	analyse := func() (*route.Route, error) {
 		d.Groups = nil
+		// A split whose sum alone carries a current found takes the sum
+		// whatever its neighbours read (splitSumFound).
+		for i := range fits {
+			if splitSumFound(fits[i].Result, ac) && NoCurrent(&fits[i].Result.Sources[0], ac) {
+				fits[i].sumSplit = true
+			}
+		}
 		// With --sensor-height, depths below the sensors' height over
 		// each line (groundlevel.go), for the refits too.
 		if rs.SensorHeight > 0 {
@@ -930,7 +937,11 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute boo
 	// Result may not be so ordered, and a line of any size whose current
 	// is not resolved (a phantom 33 m down at -54 ± 62 A beside a clean
 	// 20 A cable, fitted with --count 2) says nothing of the others.
-	weak := g.OK && noLineCurrent(res.Sources, ac) && pair == nil
+	//
+	// A same-way split whose sum the readings find (splitSumFound) is not
+	// weak: its shares are not parted, but its current is known, and the
+	// route takes the sum (forced by Build, see splitSumFound).
+	weak := g.OK && noLineCurrent(res.Sources, ac) && pair == nil && !splitSumFound(res, ac)
 	// A lone line a few centimetres from the sensors with a current just
 	// over 3 sigma, or one whose fall in chi-square noise reaches at some
 	// place along the readings: noise, not a conductor (nearSensorProblem,
@@ -1065,7 +1076,7 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute boo
 			// cable diving under a road read 0.9 of 2 A at the bends in
 			// its depth, two false steps).
 			point, dir, depth, depthSigma := splitSumCentre(res, sw)
-			g.Notes = append(g.Notes, splitSumNote(sw, depth, depthSigma, ac))
+			g.Notes = append(g.Notes, splitSumNote(sw, depth, depthSigma, ac, NoCurrent(&s, ac)))
 			g.SummedSources = &[2]int{0, sw.Lines[1]}
 			if g.OK {
 				st.Point, st.Dir, st.UnderCentre = point, dir, false
@@ -1074,6 +1085,11 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute boo
 			st.Phase, st.PhaseSigma = sw.NetCurrentPhase, sw.NetCurrentPhaseSigma
 			st.Depth, st.DepthSigma = depth, depthSigma
 			partner = sw.Lines[1]
+		} else if s.Identifiable.Dip && finite(s.DipSigma) && s.DipSigma > 0 {
+			// The route compares the line's dip with its neighbours'
+			// depths (route.BendDoubt); a pair's or a summed split's
+			// centre has no dip of its own to compare.
+			st.DipSigma = s.DipSigma
 		}
 		if g.OK && s.Kind == KindLine {
 			st.Reach = route.ReachOf(pts, st.Point, st.Dir)

@@ -587,6 +587,12 @@ type Route struct {
 	// which stations are repeats of one station, m. Both absent otherwise.
 	FirstWalk string  `json:"first_walk,omitempty"`
 	RepeatGap float64 `json:"repeat_gap_m,omitempty"`
+	// Gaps are the stretches of the route with no station, far longer
+	// than its station spacing (RouteGaps), where the conductor's
+	// position, current and cover are not known. results.json writes
+	// them as RouteGaps finds them from the stations (normalized),
+	// whatever this holds; absent when there are none.
+	Gaps []RouteGap `json:"gaps,omitempty"`
 }
 
 // endLevel returns the current at the route's end at station a (used),

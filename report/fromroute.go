@@ -1,6 +1,7 @@
 package report
 
 import (
+	"fmt"
 	"math"
 	"sort"
 	"strings"
@@ -41,6 +42,15 @@ func (d *Document) SetRoute(r *route.Route) {
 		}
 		c := r.Stations[k].Chainage
 		g.Chainage = &c
+		// A bend nearby tilts the line the route follows here
+		// (route.BendDoubt): its sigmas as the route widened them, in
+		// the group's results too.
+		if bd := r.Stations[k].Bend; bd != nil && len(g.Sources) > 0 && g.Sources[0].Kind == KindLine {
+			s := &g.Sources[0]
+			s.DipSigma, s.DepthSigma, s.CurrentSigma = bd.DipSigma, bd.DepthSigma, bd.CurrentSigma
+			s.Notes = append(s.Notes, fmt.Sprintf("dip, depth and current sigmas widened for a bend nearby: the fitted dip %s deg departs from the slope of the neighbouring stations' depths, %s deg (the fit's own sigmas: dip %s deg, depth %s m, current %s A)",
+				PlusMinus(bd.FitDip, bd.FitDipSigma), PlusMinus(bd.RouteDip, bd.RouteDipSigma), route.SigmaText(bd.FitDipSigma), route.SigmaText(bd.FitDepthSigma), route.SigmaText(bd.FitCurrentSigma)))
+		}
 		// Turn the group's conductors along the route too, so that the
 		// document reads the same way everywhere.
 		t := r.Stations[k].Dir

@@ -65,6 +65,12 @@ const (
 //   - "route past unused station": the stretch of a conductor's route
 //     across stations it left out between two used ones (routeBridges),
 //     so that the line does not vanish where the conductor runs;
+//   - "unsurveyed gap": a stretch of a conductor's route with no station,
+//     far longer than the route's station spacing (RouteGaps), drawn
+//     apart from the route's line, which breaks there ("unsurveyed" and
+//     "unsurveyed_note" on the route say so), with its bracketing
+//     stations, chainages, length and a note (routeGapFeatures): the
+//     conductor's position, current and cover there are not known;
 //   - "failed fit": one Point per group whose fit failed (Group.OK
 //     false), at the centre of its readings, with "fit": "failed" and none
 //     of the fit's numbers (failedFitFeature); its sources get no
@@ -83,7 +89,8 @@ const (
 //     depth, depth_reference (DepthReference.Kind, what depth_m is
 //     measured from) and depth_note (the same in words, geoDepthNote),
 //     cover and their sigmas, fit (fitStatus), the azimuth (the
-//     conductor's bearing there, for a GIS to orient a symbol), the span of conductor the readings see along that bearing
+//     conductor's bearing there, for a GIS to orient a symbol), the dip
+//     (dip_deg and dip_sigma_deg, as results.csv gives them), the span of conductor the readings see along that bearing
 //     (span_m), the group's ok and problem, "conductor": 1 for the
 //     conductor the route follows, the track's number for a further
 //     conductor, absent for a source in no track, and "used": whether the
@@ -157,10 +164,12 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 	}
 	if r := d.Route; r != nil {
 		fc.Features = append(fc.Features, d.routeBridges(r, 1)...)
+		fc.Features = append(fc.Features, d.routeGapFeatures(r, 1)...)
 	}
 	for k := range d.Conductors {
 		t := &d.Conductors[k]
 		fc.Features = append(fc.Features, d.routeBridges(&t.Route, t.Number)...)
+		fc.Features = append(fc.Features, d.routeGapFeatures(&t.Route, t.Number)...)
 	}
 	depthNote := d.geoDepthNote()
 	for _, g := range d.Groups {
@@ -237,6 +246,11 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 				putSigma(props, "current_sigma_a", s.CurrentSigma)
 				props["azimuth_deg"] = roundSig(s.Azimuth, s.AzimuthSigma, 2)
 				putSigma(props, "azimuth_sigma_deg", s.AzimuthSigma)
+				// The dip, as results.csv gives it: on a dipping
+				// conductor (a bore diving under a river) the azimuth
+				// alone does not say how it runs (found in review).
+				props["dip_deg"] = roundSig(s.Dip, s.DipSigma, 2)
+				putSigma(props, "dip_sigma_deg", s.DipSigma)
 				if s.Phase != nil {
 					ps := 0.0
 					if s.PhaseSigma != nil {
@@ -253,7 +267,7 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 				// A line of an unresolved go-and-return pair: its current
 				// and depth are not determined; the pair's centre, depth
 				// and current times spacing are (Group.Pair).
-				for _, k := range []string{"current_a", "current_sigma_a", "phase_deg", "phase_sigma_deg", "azimuth_sigma_deg"} {
+				for _, k := range []string{"current_a", "current_sigma_a", "phase_deg", "phase_sigma_deg", "azimuth_sigma_deg", "dip_deg", "dip_sigma_deg"} {
 					delete(props, k)
 				}
 				props["feature"] = "pair conductor"
@@ -626,10 +640,16 @@ func (d *Document) routeFeature(r *Route, props map[string]any) (f feature, ok b
 		}
 		run = nil
 	}
+	gapsOf := RouteGaps(r)
 	for _, s := range r.Stations {
 		if !s.Used {
 			flush()
 			continue
+		}
+		if n := len(run); n > 0 && inGap(gapsOf, math.Min(run[n-1].Chainage, s.Chainage), math.Max(run[n-1].Chainage, s.Chainage)) {
+			// No station for a stretch far longer than the route's
+			// spacing: drawn apart, as an "unsurveyed gap" (routeGapFeatures).
+			flush()
 		}
 		run = append(run, s)
 	}
@@ -698,6 +718,15 @@ func (d *Document) routeFeature(r *Route, props map[string]any) (f feature, ok b
 			strings.Join(why, "; ") + "); that station's Point has \"used\": false. The conductor is not taken to stop there: " +
 			"a feature \"" + featureBridge + "\" draws the stretch between the stations either side."
 	}
+	if len(gapsOf) > 0 {
+		var names []string
+		for _, g := range gapsOf {
+			names = append(names, g.From+" to "+g.To)
+		}
+		props["unsurveyed"] = names
+		props["unsurveyed_note"] = "The line is broken where the survey has no station for far longer than the route's spacing (" +
+			gapWords(r) + "); a feature \"" + featureGap + "\" draws each such stretch: the conductor's position, current and cover there are not known."
+	}
 	if len(parts) > 1 {
 		props["parts"] = len(parts)
 	}
@@ -715,6 +744,73 @@ func (d *Document) routeFeature(r *Route, props map[string]any) (f feature, ok b
 // FeatureCollection's own "coordinate_note".
 const GeoJSONLocalNote = "Coordinates are metres east and north of a local origin, not longitude and latitude: " +
 	"a map viewer takes them for degrees and places this feature wrongly."
+
+// featureGap is the "feature" property of a stretch of a conductor's
+// route with no station (RouteGaps, routeGapFeatures).
+const featureGap = "unsurveyed gap"
+
+// routeGapFeatures are route r's gaps (RouteGaps; r is conductor n's: 1
+// for the route, else a further conductor's Track.Number), one LineString
+// feature each, "feature": featureGap, instead of a stretch of the route's
+// line: the route's line (routeFeature) breaks there and no "route past
+// unused station" is drawn across it. Each runs straight from the used
+// station nearest before the gap to the used one nearest after it (the
+// gap's own stations when they were used); a gap with no used station on
+// one side has no feature, since the route does not reach it. Its
+// properties: conductor, from_group and to_group (the stations either side
+// of the stretch with no station), chainage_from_m, chainage_to_m,
+// length_m, median_spacing_m (the route's median station spacing),
+// spacing_ratio, used false, not_used (stations the line passes that the
+// route left out, if any) and a note in words.
+func (d *Document) routeGapFeatures(r *Route, n int) []feature {
+	var out []feature
+	for _, g := range RouteGaps(r) {
+		var a, b *Station
+		for i := range r.Stations {
+			s := &r.Stations[i]
+			if !s.Used {
+				continue
+			}
+			if s.Chainage <= g.FromChainage+1e-6 && (a == nil || s.Chainage > a.Chainage) {
+				a = s
+			}
+			if s.Chainage >= g.ToChainage-1e-6 && (b == nil || s.Chainage < b.Chainage) {
+				b = s
+			}
+		}
+		if a == nil || b == nil {
+			continue
+		}
+		var skipped []string
+		for i := range r.Stations {
+			s := &r.Stations[i]
+			if !s.Used && s.Chainage > a.Chainage && s.Chainage < b.Chainage {
+				skipped = append(skipped, s.Key)
+			}
+		}
+		note := fmt.Sprintf("No station for %.0f m between %s and %s (chainage %.0f to %.0f m), %.1f times the route's median station spacing of %s m: "+
+			"the survey did not cross the conductor here. This line only joins the stations either side; the conductor's position, depth, current and cover along it are not known, and may differ (a bore may run deeper, a cable may bend).",
+			g.Length, g.From, g.To, g.FromChainage, g.ToChainage, g.Ratio, trimFloat(g.Spacing))
+		props := map[string]any{
+			"feature":          featureGap,
+			"conductor":        n,
+			"from_group":       g.From,
+			"to_group":         g.To,
+			"chainage_from_m":  round(g.FromChainage, 3),
+			"chainage_to_m":    round(g.ToChainage, 3),
+			"length_m":         round(g.Length, 3),
+			"median_spacing_m": round(g.Spacing, 3),
+			"spacing_ratio":    round(g.Ratio, 2),
+			"used":             false,
+			"note":             note,
+		}
+		if len(skipped) > 0 {
+			props["not_used"] = skipped
+		}
+		out = append(out, feature{Type: "Feature", Geometry: d.line([][3]float64{a.Point, b.Point}), Properties: props})
+	}
+	return out
+}
 
 // featureBridge is the "feature" property of a stretch of a conductor's
 // route across stations the route left out (routeBridges).
@@ -845,8 +941,15 @@ func (d *Document) routeBridges(r *Route, n int) []feature {
 	}
 	var out []feature
 	prev := -1
+	gaps := RouteGaps(r)
 	for i := range r.Stations {
 		if !r.Stations[i].Used {
+			continue
+		}
+		if prev >= 0 && i > prev+1 && inGap(gaps, math.Min(r.Stations[prev].Chainage, r.Stations[i].Chainage), math.Max(r.Stations[prev].Chainage, r.Stations[i].Chainage)) {
+			// A stretch with an unsurveyed gap in it: the gap's own
+			// feature draws it (routeGapFeatures).
+			prev = i
 			continue
 		}
 		if prev >= 0 && i > prev+1 {

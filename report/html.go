@@ -941,6 +941,12 @@ func (v *view) summarise() {
 			}
 			line += "see the findings for the others)"
 		}
+		if g := gapWords(r); g != "" && len(used) > 1 {
+			// A stretch with no station is no part of what was traced:
+			// "traced for 180 m" ran across a river's 60 m where no
+			// traverse was made (found in review).
+			line += "; no station over " + g + " (see below)"
+		}
 		v.Headline = append(v.Headline, line+".")
 		if z := ChainageZero(d); z != "" {
 			v.Headline = append(v.Headline, z)
@@ -1052,9 +1058,20 @@ func (v *view) summarise() {
 			if c, ok := d.cover(lo.Depth); ok && lc == "" {
 				line += fmt.Sprintf("; least cover %s m", pm(c, d.coverSigma(lo.DepthSigma)))
 			}
+			if g := gapWords(r); g != "" && lc == "" {
+				// LeastCover names the gap when it has a sentence.
+				if coverKnown {
+					line += "; cover not known over " + g
+				} else {
+					line += "; depth not known over " + g
+				}
+			}
 			v.Headline = append(v.Headline, line+".")
 			if lc != "" {
 				v.Headline = append(v.Headline, lc)
+			}
+			if gs := RouteGapSentence(d); gs != "" {
+				v.Headline = append(v.Headline, gs)
 			}
 			if !coverKnown {
 				v.Headline = append(v.Headline, NoCoverSentence)
@@ -1402,6 +1419,13 @@ func LeastCover(d *Document) string {
 	if pairBest >= 0 && best != pairBest {
 		p := cands[pairBest]
 		line += fmt.Sprintf("; the go-and-return pair's centre lies under %s m at its shallowest (%s), and %s", pm(p.cover, p.sigma), p.key, PairCoreNote)
+	}
+	if g := gapWords(d.Route); g != "" {
+		// The least cover is over the stations surveyed: across a
+		// stretch with no station the cover is not known at all, and a
+		// bore is deepest, or a cable may rise, just there (found in
+		// review: a river's 60 m left out of an HDD survey).
+		line += "; cover not known over " + g + ", where no station was surveyed"
 	}
 	if l, ok := d.shallowLoneLine(); ok && l.cover < cands[best].cover {
 		line += fmt.Sprintf("; a further line that no conductor follows (seen at too few traverses: a crossing service, for example) lies shallower, under %s m at %s (chainage %.0f m)", pm(l.cover, l.sigma), l.key, l.chainage)

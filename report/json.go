@@ -187,12 +187,14 @@ func (d *Document) normalized() *Document {
 	}
 	if d.Route != nil {
 		c.Route = d.withoutFailedEstimates(d.Route)
+		c.Route.Gaps = RouteGaps(d.Route)
 	}
 	if len(d.Conductors) > 0 {
 		c.Conductors = make([]Track, len(d.Conductors))
 		copy(c.Conductors, d.Conductors)
 		for i := range c.Conductors {
 			c.Conductors[i].Route = *d.withoutFailedEstimates(&d.Conductors[i].Route)
+			c.Conductors[i].Route.Gaps = RouteGaps(&d.Conductors[i].Route)
 		}
 	}
 	return &c

@@ -557,7 +557,8 @@ func drawPlan(d *Document, side vg.Length, frame *planFrame, ranges bool) (*plot
 // planRoutePath is how the plan view draws a route: runs of two or more
 // successive used stations (Station.Used) as the fitted route, the
 // stretches between used stations across stations not used as gaps (a
-// thin dotted line), and the used stations' points. A station not used
+// thin dotted line), as are unsurveyed gaps (RouteGaps), and the used
+// stations' points. A station not used
 // (a failed fit, no current found, an object) has no conductor point of
 // its own (a failed fit's is the centre of its readings), so the route is
 // broken there as route.geojson breaks it, and is drawn no further than
@@ -579,11 +580,14 @@ func planRoute(r *Route) planRoutePath {
 		}
 		run = xy{}
 	}
+	unsurveyed := RouteGaps(r)
 	for i, st := range r.Stations {
 		if !st.Used {
 			continue
 		}
-		if prev >= 0 && prev != i-1 {
+		// Across stations not used, and across an unsurveyed gap
+		// (RouteGaps), which route.geojson draws apart too: dotted.
+		if prev >= 0 && (prev != i-1 || inGap(unsurveyed, math.Min(r.Stations[prev].Chainage, st.Chainage), math.Max(r.Stations[prev].Chainage, st.Chainage))) {
 			flush()
 			a := r.Stations[prev].Point
 			out.gaps = append(out.gaps, xy{[]float64{a[0], st.Point[0]}, []float64{a[1], st.Point[1]}})

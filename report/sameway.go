@@ -22,6 +22,27 @@ func sameWayOf(res *inverse.Result) *inverse.PairEstimate {
 	return nil
 }
 
+// splitSumFound reports whether the strongest line of res is split in two
+// same-way lines (sameWayOf) whose sum carries a current found: beyond
+// currentK times its sigma from zero. Such a fit is not one with no
+// current found even where neither share is (noLineCurrent), and where the
+// strongest share alone has none the route takes the sum (Build sets
+// sumSplit before markSplitSums weighs it against the neighbours): the sum
+// is then the only current the readings give. On a 20 A bore rising to
+// 1 m (rv23a hdd.toml, invented), the traverse 8 m past the bend was split
+// into 10.6 ± 4.2 and 8.7 ± 4.2 A whose sum was 19.3 ± 0.047 A, a field
+// about 1000 times the noise; it was dropped as "a conductor too deep or
+// weak ... longer traverses or a stronger current would" on 3 of 4 seeds,
+// and summed on the others, where the stronger share happened to pass 3
+// sigma (found in review).
+func splitSumFound(res *inverse.Result, ac bool) bool {
+	sw := sameWayOf(res)
+	if sw == nil || len(res.Sources) == 0 || res.Sources[0].Kind == KindDipole {
+		return false
+	}
+	return sw.NetCurrentSigma > 0 && math.Abs(sw.NetCurrent) > currentK(ac)*sw.NetCurrentSigma
+}
+
 // markSplitSums sets Fit.sumSplit on the fits whose strongest line is split
 // in two same-way lines whose shares the readings do not part
 // (inverse.Result.SameWay) when the route should take their sum: the second
@@ -117,14 +138,20 @@ func markSplitSums(fits []Fit, r *route.Route, tracks []builtTrack) bool {
 
 // splitSumNote words the group note of a station that takes the sum of its
 // fit's same-way split sw, placed depth (sigma depthSigma) deep
-// (splitSumCentre).
-func splitSumNote(sw *inverse.PairEstimate, depth, depthSigma float64, ac bool) string {
+// (splitSumCentre); alone says that the stronger share carries no current
+// found, so that the sum is the only current the readings give
+// (splitSumFound).
+func splitSumNote(sw *inverse.PairEstimate, depth, depthSigma float64, ac, alone bool) string {
 	unit := "A"
 	if ac {
 		unit = "A RMS"
 	}
-	return fmt.Sprintf("the route takes the sum of lines %d and %d, %s %s at their centre (weighted by their currents, and in plan, where the lines cross, by how well each is placed), %s m deep: nearer the current either side than either line's, as where one conductor bends under the readings",
-		sw.Lines[0]+1, sw.Lines[1]+1, PlusMinus(math.Abs(sw.NetCurrent), sw.NetCurrentSigma), unit, PlusMinus(depth, depthSigma))
+	why := "nearer the current either side than either line's, as where one conductor bends under the readings"
+	if alone {
+		why = "the only current these readings find, as neither line's own is, as where one conductor bends under or near the readings"
+	}
+	return fmt.Sprintf("the route takes the sum of lines %d and %d, %s %s at their centre (weighted by their currents, and in plan, where the lines cross, by how well each is placed), %s m deep (the uncertainty holds half the lines' %.2g m spacing: readings that do not part the shares do not fix the conductor's depth better): %s",
+		sw.Lines[0]+1, sw.Lines[1]+1, PlusMinus(math.Abs(sw.NetCurrent), sw.NetCurrentSigma), unit, PlusMinus(depth, depthSigma), sw.Spacing, why)
 }
 
 // sharesTrack reports whether track t is made of the weaker shares of
@@ -172,16 +199,21 @@ func sharesTrack(fits []Fit, t *builtTrack) bool {
 // cover (found in review); the lines' mean direction, 23 degrees off the
 // cable's there, made a bend. It returns sw's own centre and direction
 // when a share is missing or the currents do not add.
+//
+// The sigma also holds half the lines' spacing (splitGeometrySigma): the
+// readings that do not part the shares do not fix the geometry of the
+// conductor they stand for either, and its depth is not known better than
+// that.
 func splitSumCentre(res *inverse.Result, sw *inverse.PairEstimate) (point, dir [3]float64, depth, depthSigma float64) {
 	i, j := sw.Lines[0], sw.Lines[1]
 	if i < 0 || j < 0 || i >= len(res.Sources) || j >= len(res.Sources) {
-		return sw.Point, sw.Dir, sw.Depth, sw.DepthSigma
+		return sw.Point, sw.Dir, sw.Depth, math.Hypot(sw.DepthSigma, splitGeometrySigma(sw))
 	}
 	a, b := &res.Sources[i], &res.Sources[j]
 	ia, ib := math.Abs(a.Current), math.Abs(b.Current)
 	na, nb := math.Sqrt(dot3(a.Dir, a.Dir)), math.Sqrt(dot3(b.Dir, b.Dir))
 	if !(ia+ib > 0) || !(na > 0) || !(nb > 0) {
-		return sw.Point, sw.Dir, sw.Depth, sw.DepthSigma
+		return sw.Point, sw.Dir, sw.Depth, math.Hypot(sw.DepthSigma, splitGeometrySigma(sw))
 	}
 	wa, wb := ia/(ia+ib), ib/(ia+ib)
 	// In plan, lines parallel within their azimuth sigmas count by current
@@ -217,9 +249,30 @@ func splitSumCentre(res *inverse.Result, sw *inverse.PairEstimate) (point, dir [
 	}
 	depth = wa*a.Depth + wb*b.Depth
 	dw := math.Max(a.CurrentSigma, b.CurrentSigma) / (ia + ib)
+	g := splitGeometrySigma(sw)
 	depthSigma = math.Sqrt(wa*wa*a.DepthSigma*a.DepthSigma + wb*wb*b.DepthSigma*b.DepthSigma +
-		dw*dw*(a.Depth-b.Depth)*(a.Depth-b.Depth))
+		dw*dw*(a.Depth-b.Depth)*(a.Depth-b.Depth) + g*g)
 	return point, dir, depth, depthSigma
+}
+
+// splitGeometrySigma is the one-sigma the depth of the sum of the same-way
+// split sw is given for the split's own geometry: half the lines' spacing
+// (the distance between the lines, so at least half the difference of
+// their depths). A split is the
+// fit's way of taking up a field one straight line does not describe (a
+// conductor bending under or near the readings), and the current-weighted
+// centre is where one line carrying the sum has the same field only to
+// first order. On a 20 A bore rising to 1 m seen from sensors 4 m up
+// (rv23a hddp.toml, invented), traverses 8-18 m past the bend split it
+// into lines 1.4-1.7 m apart in plan, both about 0.7 m deep, and the sum's
+// centre read 0.677-0.701 ± 0.036 m cover for the 1.00 m: a shallow-cover
+// warning at 8-9 sigma on every seed (found in review). The depth of
+// either share is no better a measure of the conductor's there.
+func splitGeometrySigma(sw *inverse.PairEstimate) float64 {
+	if !(sw.Spacing > 0) {
+		return 0
+	}
+	return sw.Spacing / 2
 }
 
 // splitPlanWeights are the weights, adding to 1, of the two lines of a

@@ -45,6 +45,10 @@ type readFlags struct {
 	// timeOrder is how time must run through a log: ordered, per-group
 	// or any.
 	timeOrder string
+	// timeOffset is the UTC offset of text times written without one
+	// (--time-offset); dateOrder the order of day, month and year in
+	// dates such as 21/04/2026 (--date-order).
+	timeOffset, dateOrder string
 	// layout lists the flags given (by options) that describe a CSV
 	// log's layout or a log's columns, units and axes, none of which
 	// applies to an IAGA-2002 file (checkIAGA).
@@ -122,6 +126,8 @@ func (f *readFlags) add(fs *pflag.FlagSet) {
 	fs.BoolVar(&f.decimalComma, "decimal-comma", false, "CSV numbers write decimals with a comma (12,5); default: detected, when the delimiter is not a comma, from the first data row with a number written with a decimal comma or point; --decimal-comma=false refuses them")
 	fs.BoolVar(&f.allowUnterminated, "allow-unterminated", false, "read an Arrow IPC stream file that stops without its end-of-stream marker (a copy cut short or a writer stopped mid-run): the rows before the cut, with a warning (a CSV file's last line that looks cut short is left out with a warning, with this flag or without)")
 	fs.StringVar(&f.timeOrder, "time-order", "ordered", "how time must run through a log: ordered, per-group (within each value of the group column: sensors or traverses logged one after another) or any")
+	fs.StringVar(&f.timeOffset, "time-offset", "", "UTC offset of text times written without one, as +01:00, -05:30, +0100 or Z: they are read as that zone's local times instead of as UTC with a warning; times that carry their own offset keep it")
+	fs.StringVar(&f.dateOrder, "date-order", "", "order of day, month and year in text dates such as 21/04/2026 09:40:00.000, 21.04.2026 09:40 or 4/21/2026 9:40:05: dmy, mdy or ymd (default: such dates are refused)")
 	fs.BoolVar(&f.iagaBaseline, "iaga-baseline-frame", false, "leave IAGA-2002 variation data (H D Z, H E Z; a base-station log too) in the observatory's baseline frame instead of turning them to geographic north by the header's DECBAS; H E Z data of other types (adjusted, definitive), which are never turned, are then read without a warning")
 }
 
@@ -228,6 +234,20 @@ func (f *readFlags) options(fs *pflag.FlagSet) ([]ingest.Option, error) {
 			return nil, usageErrorf("--time-order %q: want ordered, per-group or any", f.timeOrder)
 		}
 		opts = append(opts, ingest.WithTimeOrder(o))
+	}
+	if changed("time-offset") {
+		off, err := ingest.ParseTimeOffset(f.timeOffset)
+		if err != nil {
+			return nil, usageErrorf("--time-offset %s", strings.TrimPrefix(err.Error(), "ingest: time offset "))
+		}
+		opts = append(opts, ingest.WithTimeOffset(off))
+	}
+	if changed("date-order") {
+		o, err := ingest.ParseDateOrder(f.dateOrder)
+		if err != nil {
+			return nil, usageErrorf("--date-order %q: want dmy (21/04/2026), mdy (4/21/2026) or ymd (2026/04/21)", f.dateOrder)
+		}
+		opts = append(opts, ingest.WithDateOrder(o))
 	}
 	return opts, nil
 }

@@ -349,7 +349,7 @@ or a slower walk.
 
 The input flags (--column, --unit, --delimiter, --header, --comment,
 --frame, --origin, --decimal-comma, --iaga-baseline-frame, --time-order,
---allow-unterminated, --drop-missing), the same for every command that
+--time-offset, --date-order, --allow-unterminated, --drop-missing), the same for every command that
 reads logs, apply to the survey logs. Of them, only --time-order,
 --allow-unterminated and --iaga-baseline-frame apply to the base log
 (--base) too; it comes from another instrument, usually in another format,
@@ -912,12 +912,19 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		}
 		// A DC log in uT read as nT (unitslip.go).
 		if !o.coil.on() && !sv.ac && !o.read.fieldUnitGiven() {
-			if err := surveyLogUnit(path, s); err != nil {
-				// The refusal says what the band warning said, and more.
+			w, err := surveyLogUnit(path, s)
+			if err != nil || w != "" {
+				// The refusal, or the warning of two readings, says
+				// what the band warning said, and more.
 				sv.warnings = slices.DeleteFunc(sv.warnings, func(w string) bool {
 					return strings.HasPrefix(w, path+": median |B| is ") && strings.Contains(w, earthBand)
 				})
+			}
+			if err != nil {
 				return nil, err
+			}
+			if w != "" {
+				sv.warnings = append(sv.warnings, w)
 			}
 		}
 		if w := ingest.OneTime(s.Time); w != "" && !sv.ac {
@@ -1651,14 +1658,19 @@ func zoneWords(base, rover *ingest.Samples, m int, what string) string {
 		}
 		return "they carry their UTC offset or are seconds since 1970, UTC either way"
 	}
-	// local words the hint for one log read m minutes late (its local
-	// times of zone UTC+m read as UTC); t0 is its first time.
-	local := func(who string, m int, t0 float64) string {
-		return fmt.Sprintf("are %s times the local times of a zone UTC%s written without their offset (and so read as UTC)? If so, write the offset into them (such as %s%s)", who, zone(m), stamp(t0), zone(m))
-	}
 	roverName := "the survey log's"
 	if rover.Source != "" {
 		roverName = rover.Source + "'s"
+	}
+	// local words the hint for one log read m minutes late (its local
+	// times of zone UTC+m read as UTC); t0 is its first time.
+	local := func(who string, m int, t0 float64) string {
+		give := ""
+		if who == roverName {
+			// The survey logs take --time-offset; the base log does not.
+			give = fmt.Sprintf(", or give it with --time-offset %s", zone(m))
+		}
+		return fmt.Sprintf("are %s times the local times of a zone UTC%s written without their offset (and so read as UTC)? If so, write the offset into them (such as %s%s)%s", who, zone(m), stamp(t0), zone(m), give)
 	}
 	blo, _ := finiteSpan(base.Time)
 	rlo, _ := finiteSpan(rover.Time)
@@ -2964,6 +2976,10 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration, walked 
 	// The least cover over every conductor followed, naming which.
 	if lc := report.LeastCover(doc); lc != "" {
 		fmt.Fprintln(w, lc)
+	}
+	// Where the route has no station for far longer than its spacing.
+	if gs := report.RouteGapSentence(doc); gs != "" {
+		fmt.Fprintln(w, gs)
 	}
 	// Where chainage 0 is on the ground, as the crew report says it.
 	if z := report.ChainageZero(doc); z != "" {

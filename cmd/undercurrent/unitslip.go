@@ -175,24 +175,131 @@ func unitFactorWords(factor float64) string {
 	return fmt.Sprintf("%g times too small", factor)
 }
 
-// surveyLogUnit refuses a DC survey log read without --unit whose |B| is
-// as steady as a record of the Earth's field while its median lies
+// The centred dipole of IGRF-14 for epoch 2025.0 (International
+// Association of Geomagnetism and Aeronomy, Working Group V-MOD, 2024):
+// g10, g11, h11 in nT. The dipole is within a few thousand nT of the
+// Earth's field in most places (at Boulder, 40.14 N 105.24 W, it gives
+// H 20 014 and Z 43 976 nT against the observatory's 20 827 and 46 875);
+// the non-dipole field is largest over the South Atlantic, where it is
+// about a third of the field.
+const (
+	dipoleG10 = -29350.0
+	dipoleG11 = -1410.3
+	dipoleH11 = 4545.5
+)
+
+// dipoleEarthField returns the horizontal intensity and the vertical
+// component (positive down) of the IGRF-14 centred dipole at geodetic
+// latitude and longitude in degrees, taken as geocentric at the surface
+// (an error of at most 0.2 degrees in latitude, far below the dipole's
+// own).
+func dipoleEarthField(lat, lon float64) (h, z float64) {
+	theta := (90 - lat) * math.Pi / 180
+	phi := lon * math.Pi / 180
+	st, ct := math.Sincos(theta)
+	sp, cp := math.Sincos(phi)
+	q := dipoleG11*cp + dipoleH11*sp
+	x := -dipoleG10*st + q*ct // north
+	y := dipoleG11*sp - dipoleH11*cp
+	z = -2 * (dipoleG10*ct + q*st) // down
+	return math.Hypot(x, y), z
+}
+
+// earthMatch is how close a steady field must come to the dipole's at the
+// log's origin, in horizontal intensity and vertical component together,
+// as a share of the dipole's total field, to be taken for the Earth's
+// field at that place: the dipole is within 0.06 of it at Boulder and
+// about 0.1 over Britain, and a field read level with an unknown heading
+// keeps its horizontal intensity and its vertical component.
+const earthMatch = 0.25
+
+// earthAt reports whether the per-axis medians v (east, north, up, nT)
+// are the Earth's field at the origin g by the dipole (earthMatch).
+func earthAt(v [3]float64, g *ingest.Geodetic) bool {
+	h, z := dipoleEarthField(g.Lat, g.Lon)
+	f := math.Hypot(h, z)
+	return math.Hypot(math.Hypot(v[0], v[1])-h, -v[2]-z) <= earthMatch*f
+}
+
+// surveyLogUnit looks at a DC survey log read without --unit whose |B|
+// is as steady as a record of the Earth's field while its median lies
 // outside the Earth's band, where one field unit's factor would bring it
-// (steadyEarthUnit): a log in uT read as nT. Before, such a log ran to
-// "21 sound" at 0.0017818 A for a 1.80 A cable, with only a warning after
-// the results (found in review), while the same log with --base, and
-// calibrate, refused it. A log with the Earth's field removed is not
-// steady and is let through with the band warning; an AC log (whose
-// sensors may leave the static field out) and an IAGA-2002 file (in nT by
-// its format) are not looked at here.
-func surveyLogUnit(path string, s *ingest.Samples) error {
+// (steadyEarthUnit). Such a log is either a total field in that unit read
+// as nT, or, below the band, a log with the Earth's field taken off (by
+// the logger, a model or a reference sensor) leaving a fixed background
+// of some tens or hundreds of nT, or a gradiometer's offset. Read with
+// the factor, the first is still the Earth's field; the second is a
+// vector fixed in the survey's frame that only by chance matches it. So
+// the log is refused (err) only on the evidence of a total field: above
+// the band (no background left by taking a field off reads so much);
+// its size steady while its direction turns in the sensor's axes, as the
+// Earth's field does for a carried sensor (ingest.TurningTotalField); or,
+// in east, north, up with an origin, its medians times the factor the
+// dipole Earth's field at that place (earthAt). Otherwise it returns a
+// warning naming both readings and the --unit of each. Before, every
+// steady log below the band was refused as in mG or uT, and the --unit
+// it advised made a background-removed survey's currents 100 or 1000
+// times too large with every fit "sound" (found in review). A log with
+// the Earth's field removed that is not steady is not looked at; nor are
+// an AC log (whose sensors may leave the static field out) and an
+// IAGA-2002 file (in nT by its format).
+func surveyLogUnit(path string, s *ingest.Samples) (string, error) {
 	if s.Meta["elements"] != "" {
-		return nil
+		return "", nil
 	}
 	m, rel, unit, factor, ok := steadyEarthUnit(s.Bx, s.By, s.Bz)
 	if !ok {
-		return nil
+		return "", nil
 	}
-	return fmt.Errorf("%s: median |B| is %.4g nT as read, outside %s, yet as steady as a record of the Earth's field (90%% of readings within %.2g%% of each other): its field columns are probably in %s, and read as nT every current fitted would come out %s. Refused: give their unit with --unit bx=%s,by=%s,bz=%s (or --unit bx=nT,by=nT,bz=nT if nT is right)",
-		path, m, earthBand, 100*rel, unit, unitFactorWords(factor), unit, unit, unit)
+	mags, vecs := fieldRows(s.Bx, s.By, s.Bz)
+	var med [3]float64
+	for k := range med {
+		c := make([]float64, len(vecs))
+		for i, v := range vecs {
+			c[i] = v[k]
+		}
+		sort.Float64s(c)
+		med[k] = c[len(c)/2] * factor
+	}
+	var why string
+	switch {
+	case factor < 1:
+		why = "and far above it, where no background left by taking a field off lies"
+	case ingest.TurningTotalField(mags, vecs):
+		why = "and turning in the sensor's axes as the Earth's field does for a carried sensor"
+	case s.Frame != ingest.FrameSensor && s.Origin != nil && earthAt(med, s.Origin):
+		why = fmt.Sprintf("and read in %s its east, north and up are the Earth's field at the log's origin (%.4g, %.4g)", unit, s.Origin.Lat, s.Origin.Lon)
+	}
+	if why != "" {
+		return "", fmt.Errorf("%s: median |B| is %.4g nT as read, outside %s, yet as steady as a record of the Earth's field (90%% of readings within %.2g%% of each other), %s: its field columns are probably in %s, and read as nT every current fitted would come out %s. Refused: give their unit with --unit bx=%s,by=%s,bz=%s, or --unit bx=nT,by=nT,bz=nT if they are in nT",
+			path, m, earthBand, 100*rel, why, unit, unitFactorWords(factor), unit, unit, unit)
+	}
+	return fmt.Sprintf("%s: median |B| is %.4g nT as read, outside %s, and steady (90%% of readings within %.2g%% of each other), which fits two readings: the Earth's field taken off (by the logger, a model or a reference sensor) leaving a fixed background of %.4g nT, or a gradiometer's offset, when nT is right and the currents below stand (give --unit bx=nT,by=nT,bz=nT to say so); or total-field readings in %s, when every current below is %s (give --unit bx=%s,by=%s,bz=%s). Nothing in the log tells them apart: its field does not turn in the sensor's axes%s",
+		path, m, earthBand, 100*rel, m, unit, unitFactorWords(factor), unit, unit, unit, originWords(s)), nil
+}
+
+// originWords says why the log's origin did not settle its unit.
+func originWords(s *ingest.Samples) string {
+	switch {
+	case s.Frame == ingest.FrameSensor:
+		return ", and in the sensor's axes it cannot be set beside the Earth's field at a place"
+	case s.Origin == nil:
+		return ", and with no origin it cannot be set beside the Earth's field at a place"
+	}
+	return fmt.Sprintf(", and read in another unit it is not the Earth's field at the log's origin (%.4g, %.4g)", s.Origin.Lat, s.Origin.Lon)
+}
+
+// fieldRows returns |B| and the field vector of the finite readings, at
+// most about a million of them, evenly spread.
+func fieldRows(bx, by, bz []float64) ([]float64, [][3]float64) {
+	var mags []float64
+	var vecs [][3]float64
+	step := max(1, len(bx)/(1<<20))
+	for i := 0; i < len(bx); i += step {
+		if v := math.Sqrt(bx[i]*bx[i] + by[i]*by[i] + bz[i]*bz[i]); !math.IsNaN(v) && !math.IsInf(v, 0) {
+			mags = append(mags, v)
+			vecs = append(vecs, [3]float64{bx[i], by[i], bz[i]})
+		}
+	}
+	return mags, vecs
 }

@@ -50,6 +50,11 @@ const (
 	// KindAttenuation is the steady fall of current along the route,
 	// fitted as an exponential (attenuation.go). Information only.
 	KindAttenuation Kind = "attenuation"
+	// KindBendNear is a station whose fitted dip departs from the slope
+	// of the depths of the stations either side: the conductor bends
+	// near it, and the straight line fitted there is tilted, its depth
+	// and current biased; its sigmas are widened (bend.go). A caution.
+	KindBendNear Kind = "bend-near"
 )
 
 // Severity ranks findings for a crew.

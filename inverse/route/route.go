@@ -59,6 +59,10 @@ type Placed struct {
 	// which FirstWalkCurrentSigma carries (zero when Route.FirstWalk is
 	// empty).
 	FirstWalkRouteSigma float64
+	// Bend is set when the station's fitted dip departs from the slope
+	// of its neighbours' depths (bend.go): DipSigma, DepthSigma and
+	// CurrentSigma are then widened, and Bend keeps the fit's own.
+	Bend *BendDoubt
 }
 
 // Route is the result of Build.
@@ -177,6 +181,9 @@ func Build(stations []Station, set *Settings) (*Route, error) {
 			r.Stations[k].FirstWalkCurrentSigma = pub[k].CurrentSigma
 		}
 	}
+	// A station whose fitted dip departs from the slope of its
+	// neighbours' depths: a bend nearby tilts its line (bend.go).
+	r.Findings = append(r.Findings, bendDoubt(r.Stations, set)...)
 	r.Findings = append(r.Findings, cover(r.Stations, set)...)
 	for _, f := range quality(r.Stations, set, st) {
 		if f.Kind == KindPoorFit && len(f.Keys) == 1 && notes[f.Keys[0]] != "" {
@@ -186,6 +193,7 @@ func Build(stations []Station, set *Settings) (*Route, error) {
 	}
 	r.Findings = append(r.Findings, weakSources(r.Stations, set)...)
 	r.Findings = append(r.Findings, unsearched(r.Stations, r.Findings)...)
+	r.Findings = mergeBends(r.Findings, r.Stations)
 	sort.SliceStable(r.Findings, func(i, j int) bool {
 		a, b := &r.Findings[i], &r.Findings[j]
 		if a.From != b.From {

@@ -55,6 +55,11 @@ type Station struct {
 	// Depth and DepthSigma are the depth below the depth reference and its
 	// one-sigma uncertainty, m.
 	Depth, DepthSigma float64
+	// DipSigma is the one-sigma uncertainty of the line's dip (the angle
+	// of Dir below horizontal), degrees; zero when the dip was held or is
+	// not known, and then the station's dip is not compared with its
+	// neighbours' depths (bend.go).
+	DipSigma float64
 	// RMS is the fit's root-mean-square residual, nT.
 	RMS float64
 	// Signal is the root-mean-square of the fitted sources' field over the
