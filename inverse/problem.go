@@ -478,6 +478,12 @@ type Result struct {
 	// rate times the traverse's time span over the mean current), and
 	// CurrentRampSigma its sigma; 0 otherwise.
 	CurrentRamp, CurrentRampSigma float64
+	// CurrentRampEnds are, with CurrentRamp, the current the ramp gives at
+	// the traverse's first and last reading (each as a fraction of the mean
+	// current, less 1) and its rate of change there (fractions of the mean
+	// per second): a survey can check that one traverse's ramp runs on into
+	// the next's across the turn.
+	CurrentRampEnds [4]float64
 	// Notes are cautions about the whole fit.
 	Notes []string
 }

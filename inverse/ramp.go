@@ -42,6 +42,7 @@ type rampFit struct {
 	rngSig float64
 	relK   float64 // rng / its sigma
 	span   float64 // s
+	ends   [4]float64
 }
 
 // checkRamp fits the one-line fit c1 again with the column (t - tc) g(x) as a
@@ -244,6 +245,9 @@ func (f *fitter) checkRamp(c1 *candidate, order int) *rampFit {
 	}
 	out := &rampFit{order: order, x: x, rss: rss, span: span,
 		rel: change(v), relSig: sigmaOf(change), rng: rangeOf(v), rngSig: sigmaOf(rangeOf)}
+	mean := v[0] + v[2]*dt2
+	slope := func(d float64) float64 { return v[1] + 2*v[2]*d }
+	out.ends = [4]float64{cur(v, a)/mean - 1, cur(v, b)/mean - 1, slope(a) / mean, slope(b) / mean}
 	if out.rngSig > 0 {
 		out.relK = out.rng / out.rngSig
 	}
@@ -324,6 +328,7 @@ func (f *fitter) findRamp(c1 *candidate) (*rampFit, float64) {
 func applyRamp(res *Result, r *rampFit, kb int) {
 	res.Notes = append(res.Notes, rampNote(r, kb))
 	res.CurrentRamp, res.CurrentRampSigma = r.rel, r.relSig
+	res.CurrentRampEnds = r.ends
 	if len(res.Sources) > 0 {
 		s := &res.Sources[0]
 		s.CurrentSigma = math.Hypot(s.CurrentSigma, r.rng*math.Abs(s.Current)/2)

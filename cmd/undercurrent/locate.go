@@ -583,11 +583,14 @@ func progressOn(stderr io.Writer) io.Writer {
 
 // group is the readings of one group, ready to fit.
 type group struct {
-	key     string
-	from    string // the log of its first reading
-	points  [][3]float64
-	fields  [][3]float64    // DC
-	stamps  []float64       // DC: each reading's time, s (NaN when the log has none)
+	key    string
+	from   string // the log of its first reading
+	points [][3]float64
+	fields [][3]float64 // DC
+	stamps []float64    // DC: each reading's time, s (NaN when the log has none)
+	// noTimes leaves the stamps out of the DC fits' problem: the survey's
+	// current ramps were taken for a spatial shape (guardTimeRamps).
+	noTimes bool
 	phasors [][3]complex128 // AC
 	res     *inverse.Result // fit
 	err     error           // fit failure
@@ -631,7 +634,7 @@ func (g *group) problem(ac bool, noise float64) *inverse.Problem {
 		p.Fields = g.fields
 		// The readings' times let the fit check for a current changing
 		// while the traverse was walked (inverse.CurrentRampNote).
-		if len(g.stamps) == len(g.points) {
+		if len(g.stamps) == len(g.points) && !g.noTimes {
 			p.Times = g.stamps
 		}
 	}
@@ -2266,6 +2269,7 @@ feed:
 		bar.Finish()
 	}
 	if err == nil {
+		guardTimeRamps(sv, set, o.noise)
 		dropMisfitRamps(sv.groups)
 		dropLoneRamps(sv.groups)
 		dropWalkRamps(sv.groups)
