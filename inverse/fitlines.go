@@ -396,7 +396,25 @@ func (f *fitter) run() (*Result, error) {
 		}
 		f.rough = false
 		c, unsupported := f.forcedCount(prev, chain)
+		// One line asked for: checked for a current changing in time as
+		// the automatic count's one-line fit is (findRamp).
+		var ramp *rampFit
+		if s.Count == 1 && len(c.sp.geom) == 1 && c.keptFrom == nil {
+			crit := f.score(c).BIC
+			if s.Criterion == AIC {
+				crit = f.score(c).AIC
+			}
+			if r, rc := f.findRamp(c); r != nil && rc < crit {
+				ramp = r
+				if rb := f.rampCandidate(c, r); rb != nil {
+					c = rb
+				}
+			}
+		}
 		res, err := f.report(c, nil)
+		if err == nil && ramp != nil {
+			applyRamp(res, ramp, 1)
+		}
 		if err == nil && unsupported != "" {
 			res.Notes = append(res.Notes, fmt.Sprintf("%s: %d lines were asked for, but the readings do not support them all (%s)", UnsupportedCountNote, s.Count, unsupported))
 		}
@@ -556,12 +574,49 @@ func (f *fitter) run() (*Result, error) {
 		}
 		best, unresolved = fewer, ""
 	}
+	// A current changing in time while the traverse was walked adds a field
+	// (t - tc) g(x) that further lines absorb: the one-line fit with that
+	// column as a further strength is compared with the count chosen by the
+	// same criterion (checkRamp, CurrentRampNote).
+	var ramp *rampFit
+	if c1 := acceptedFit[1]; c1 != nil && best != nil && best.keptFrom == nil {
+		r, rc := f.findRamp(c1)
+		if r != nil {
+			if kb := len(best.sp.geom); kb == 1 && rc < accepted[1] || kb > 1 && rc < bestScore {
+				ramp = r
+				if kb > 1 {
+					for i := range scores {
+						if scores[i].Count > 1 && scores[i].Rejected == "" {
+							scores[i].Rejected = fmt.Sprintf("one line with a current ramp in time fits better (criterion %.6g)", rc)
+						}
+					}
+					unresolved = ""
+				}
+				// The line where the fit with the ramp puts it, its
+				// sigmas from the misfit left without the ramp (wider).
+				if rb := f.rampCandidate(c1, r); rb != nil {
+					best = rb
+				} else {
+					best = c1
+				}
+			}
+		}
+	}
 	for i := range scores {
 		if best != nil && scores[i].Count == len(best.sp.geom) {
 			scores[i].Chosen = true
 		}
 	}
 	res, err := f.report(best, scores)
+	if err == nil && ramp != nil {
+		kb := 1
+		for _, sc := range scores {
+			if sc.Rejected == "" || strings.HasPrefix(sc.Rejected, "one line with a current ramp") {
+				kb = max(kb, sc.Count)
+			}
+		}
+		applyRamp(res, ramp, kb)
+	}
 	if err == nil && unresolved != "" {
 		n := len(best.sp.geom)
 		res.Notes = append(res.Notes, fmt.Sprintf("%s %d %s reported by more than their noise", unresolved, n, map[bool]string{true: "line", false: "lines"}[n == 1]))

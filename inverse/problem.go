@@ -42,6 +42,10 @@ type Problem struct {
 	// r(t) (a current record, see the package documentation) is r(t_i) here, and
 	// the fitted strengths are those at r = 1. Nil means 1 at every reading.
 	Scale []float64
+	// Times, when not nil, gives each DC reading's time in seconds (any origin;
+	// NaN for none). Along a single traverse the automatic count then checks
+	// for a current changing in time while it was walked (CurrentRampNote).
+	Times []float64
 }
 
 // Subset returns a problem holding the readings i of p for which keep(i)
@@ -66,6 +70,9 @@ func (p *Problem) Subset(keep func(i int) bool) *Problem {
 		}
 		if p.Scale != nil {
 			q.Scale = append(q.Scale, p.Scale[i])
+		}
+		if len(p.Times) == len(p.Points) {
+			q.Times = append(q.Times, p.Times[i])
 		}
 	}
 	return q
@@ -484,6 +491,17 @@ type Result struct {
 	// serialSandwich, each parameter widened by its own factor, none
 	// below the covariance under independence. Both 0 for AC.
 	SerialCorrelation, SigmaWidening float64
+	// CurrentRamp is, for a DC traverse fit with CurrentRampNote, the
+	// relative change of the line's current over the traverse (the ramp's
+	// rate times the traverse's time span over the mean current), and
+	// CurrentRampSigma its sigma; 0 otherwise.
+	CurrentRamp, CurrentRampSigma float64
+	// CurrentRampEnds are, with CurrentRamp, the current the ramp gives at
+	// the traverse's first and last reading (each as a fraction of the mean
+	// current, less 1) and its rate of change there (fractions of the mean
+	// per second): a survey can check that one traverse's ramp runs on into
+	// the next's across the turn.
+	CurrentRampEnds [4]float64
 	// Notes are cautions about the whole fit.
 	Notes []string
 }

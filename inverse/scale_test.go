@@ -13,8 +13,8 @@ import (
 // Invented fixture: one traverse 12 m long at 0.3 m over a 200 A line 0.9 m down, the
 // current ramping from 140 A to 260 A (-30 % to +30 %) along it, 2 nT noise.
 
-// rampTraverse returns the readings, the factor r of each and the mean current.
-func rampTraverse(rng *rand.Rand) (p *Problem, ratio []float64, mean float64) {
+// swingTraverse returns the readings, the factor r of each and the mean current.
+func swingTraverse(rng *rand.Rand) (p *Problem, ratio []float64, mean float64) {
 	pts := traverse(49, -6, 6, 0, 0.3)
 	line := Line{Point: [3]float64{0.4, 0, -0.9}, Dir: [3]float64{0, 1, 0}}
 	bg := [3]float64{17000, 1500, -44000}
@@ -41,7 +41,7 @@ func rampTraverse(rng *rand.Rand) (p *Problem, ratio []float64, mean float64) {
 // one; without them the same readings are not fitted by that one line (more lines, or
 // a current or depth many sigma off). Fails before Problem.Scale existed.
 func TestScaleRecoversMeanCurrent(t *testing.T) {
-	p, ratio, mean := rampTraverse(rand.New(rand.NewPCG(23, 8)))
+	p, ratio, mean := swingTraverse(rand.New(rand.NewPCG(23, 8)))
 	plain, err := FitLines(p, &Settings{ReferenceZ: new(float64)})
 	if err != nil {
 		t.Fatal(err)

@@ -462,6 +462,7 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 	d.addCrossings()
 	d.addLoneCover(fits, r, rs, tracks)
 	d.addPairCover(rs)
+	d.addCurrentRamps(fits)
 	return &d, nil
 }
 

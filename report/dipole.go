@@ -1393,8 +1393,8 @@ func without(p *inverse.Problem, r *inverse.Result, j int, pos [3]float64) (*inv
 	// The object's field as the fits model every reading: averaged along the
 	// reading's path when the readings are path averages (Problem.Travel),
 	// which q keeps so that the conductors are refitted the same way, and so are
-	// the conductors' factors per reading (Problem.Scale).
-	q := &inverse.Problem{Points: p.Points, Travel: p.Travel, Scale: p.Scale, Sigma: p.Sigma}
+	// the conductors' factors per reading (Problem.Scale) and the readings' times.
+	q := &inverse.Problem{Points: p.Points, Travel: p.Travel, Scale: p.Scale, Times: p.Times, Sigma: p.Sigma}
 	basis, err := inverse.ReadingBasis(p, inverse.Dipole{Pos: pos})
 	if err != nil {
 		// The object sits on a reading's path: no finite field to remove.

@@ -9,6 +9,7 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+	"undercurrent/inverse"
 )
 
 // A DC traction return walked while the load swings (invented site: a
@@ -93,7 +94,8 @@ func tractionLogs(t *testing.T, dir string) (survey, record string, mean float64
 // is fitted with one line whose current is the record's mean over the
 // survey within its sigma (three sigma; and the cover within three sigma of
 // 0.9 m), and the notes say to what current they are scaled; without it the
-// same readings give phantom lines. Fails before --current-reference existed.
+// same readings give phantom lines or a current changing on each traverse.
+// Fails before --current-reference existed.
 func TestCurrentReferenceTraction(t *testing.T) {
 	dir := t.TempDir()
 	walk, rec, mean := tractionLogs(t, dir)
@@ -107,9 +109,21 @@ func TestCurrentReferenceTraction(t *testing.T) {
 	if err := json.Unmarshal([]byte(mustCLI(t, "locate", "--group-by", "group", "--reference-z", "0", "--json", walk)), &plain); err != nil {
 		t.Fatal(err)
 	}
-	t.Logf("without the record: %d extra lines on %d traverses", lines(&plain), len(plain.Groups))
-	if lines(&plain) == 0 {
-		t.Errorf("without the record no phantom line: the fixture does not test the scaling")
+	// Without the record a traverse gives phantom lines, or one line whose
+	// current changed while it was walked (the current-ramp check's note).
+	off := 0
+	for _, g := range plain.Groups {
+		ramp := false
+		for _, n := range g.Notes {
+			ramp = ramp || strings.Contains(n, inverse.CurrentRampNote)
+		}
+		if len(g.Sources) != 1 || ramp {
+			off++
+		}
+	}
+	t.Logf("without the record: %d extra lines on %d traverses, %d traverses with phantom lines or a current changing", lines(&plain), len(plain.Groups), off)
+	if off < len(plain.Groups)/2 {
+		t.Errorf("without the record only %d of %d traverses show the swing: the fixture does not test the scaling", off, len(plain.Groups))
 	}
 	var doc resultDoc
 	if err := json.Unmarshal([]byte(mustCLI(t, "locate", "--group-by", "group", "--reference-z", "0", "--current-reference", rec, "--json", walk)), &doc); err != nil {
@@ -122,6 +136,11 @@ func TestCurrentReferenceTraction(t *testing.T) {
 		if len(g.Sources) != 1 {
 			t.Errorf("%s: %d lines with the record, want 1", g.Key, len(g.Sources))
 			continue
+		}
+		for _, n := range g.Notes {
+			if strings.Contains(n, inverse.CurrentRampNote) {
+				t.Errorf("%s: with the record the current is still said to change: %q", g.Key, n)
+			}
 		}
 		s := g.Sources[0]
 		t.Logf("%s: %.3f +- %.3f A (mean %.3f), cover %.4f +- %.4f m", g.Key, math.Abs(s.Current), s.CurrentSigma, mean, s.Depth, s.DepthSigma)

@@ -597,12 +597,15 @@ func progressOn(stderr io.Writer) io.Writer {
 
 // group is the readings of one group, ready to fit.
 type group struct {
-	key     string
-	from    string // the log of its first reading
-	points  [][3]float64
-	fields  [][3]float64    // DC
-	stamps  []float64       // DC: each reading's time, s (NaN when the log has none)
-	scale   []float64       // DC: each reading's current over the reference's mean (--current-reference), nil without one
+	key    string
+	from   string // the log of its first reading
+	points [][3]float64
+	fields [][3]float64 // DC
+	stamps []float64    // DC: each reading's time, s (NaN when the log has none)
+	scale  []float64    // DC: each reading's current over the reference's mean (--current-reference), nil without one
+	// noTimes leaves the stamps out of the DC fits' problem: the survey's
+	// current ramps were taken for a spatial shape (guardTimeRamps).
+	noTimes bool
 	phasors [][3]complex128 // AC
 	res     *inverse.Result // fit
 	err     error           // fit failure
@@ -644,6 +647,13 @@ func (g *group) problem(ac bool, noise float64) *inverse.Problem {
 		}
 	} else {
 		p.Fields, p.Scale = g.fields, g.scale
+		// The readings' times let the fit check for a current changing
+		// while the traverse was walked (inverse.CurrentRampNote); with a
+		// reference current (scale) the change is already modelled and the
+		// check is not made.
+		if len(g.stamps) == len(g.points) && !g.noTimes && g.scale == nil {
+			p.Times = g.stamps
+		}
 	}
 	return p
 }
@@ -2287,6 +2297,7 @@ feed:
 		bar.Finish()
 	}
 	if err == nil {
+		guardTimeRamps(sv, set, o.noise)
 		dropMisfitRamps(sv.groups)
 		dropLoneRamps(sv.groups)
 		dropWalkRamps(sv.groups)
