@@ -2321,15 +2321,21 @@ func (c *candidate) counts() (n, k int) {
 // from memory: AIC = chi2 + 2k, BIC = chi2 + k ln n, or n ln(RSS/n) for unknown sigma).
 func (f *fitter) score(c *candidate) ModelScore {
 	n, k := c.counts()
+	aic, bic := f.criteria(c.rss, n, k)
+	return ModelScore{Count: len(c.sp.geom), Params: k, RSS: c.rss, AIC: aic, BIC: bic}
+}
+
+// criteria gives AIC and BIC for a residual sum of squares rss of n
+// readings and k parameters (score).
+func (f *fitter) criteria(rss float64, n, k int) (aic, bic float64) {
 	nf := float64(n)
 	var base float64
 	if f.prob.Sigma > 0 {
-		base = c.rss / (f.prob.Sigma * f.prob.Sigma)
+		base = rss / (f.prob.Sigma * f.prob.Sigma)
 	} else {
-		base = nf * math.Log(math.Max(c.rss, 1e-300)/nf)
+		base = nf * math.Log(math.Max(rss, 1e-300)/nf)
 	}
-	return ModelScore{Count: len(c.sp.geom), Params: k, RSS: c.rss,
-		AIC: base + 2*float64(k), BIC: base + float64(k)*math.Log(nf)}
+	return base + 2*float64(k), base + float64(k)*math.Log(nf)
 }
 
 // guard rejects a fit with more lines that the data do not support: a line pinned at

@@ -260,18 +260,11 @@ func (f *fitter) checkRamp(c1 *candidate, order int) *rampFit {
 // the ramp (two with a curvature in time).
 func (f *fitter) rampScore(c1 *candidate, r *rampFit) float64 {
 	n, k := c1.counts()
-	k += r.order
-	nf := float64(n)
-	var base float64
-	if f.prob.Sigma > 0 {
-		base = r.rss / (f.prob.Sigma * f.prob.Sigma)
-	} else {
-		base = nf * math.Log(math.Max(r.rss, 1e-300)/nf)
-	}
+	aic, bic := f.criteria(r.rss, n, k+r.order)
 	if f.set.Criterion == AIC {
-		return base + 2*float64(k)
+		return aic
 	}
-	return base + float64(k)*math.Log(nf)
+	return bic
 }
 
 // rampNote is the note of a ramp found (CurrentRampNote).

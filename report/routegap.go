@@ -121,18 +121,7 @@ func gapWords(r *Route) string {
 	for _, g := range RouteGaps(r) {
 		parts = append(parts, fmt.Sprintf("%.0f m between %s and %s", g.Length, g.From, g.To))
 	}
-	return joinAnd(parts)
-}
-
-// joinAnd joins words as "a", "a and b" or "a, b and c".
-func joinAnd(parts []string) string {
-	switch len(parts) {
-	case 0:
-		return ""
-	case 1:
-		return parts[0]
-	}
-	return strings.Join(parts[:len(parts)-1], ", ") + " and " + parts[len(parts)-1]
+	return keyList(parts)
 }
 
 // RouteGapSentence says in a sentence where conductor 1's route has no
@@ -157,7 +146,7 @@ func RouteGapSentence(d *Document) string {
 	if len(gaps) > 1 {
 		it = "each"
 	}
-	return "Not surveyed: " + joinAnd(parts) + "; the route only joins the stations either side of " + it + "," +
+	return "Not surveyed: " + keyList(parts) + "; the route only joins the stations either side of " + it + "," +
 		" and the conductor's position, current and cover there are not known."
 }
 
