@@ -321,10 +321,13 @@ func TestServiceRefusesArrowBomb(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	last, err := dl.GetLastMsgForSubject(ctx, "uc.dlq.oversized")
-	if err != nil {
-		t.Fatal(err)
-	}
+	// The counter moves as the worker refuses the message, just before it
+	// stores the dead letter: wait for the stored one too.
+	var last *jetstream.RawStreamMsg
+	waitFor(t, 30*time.Second, "the bomb's dead letter stored", func() bool {
+		last, err = dl.GetLastMsgForSubject(ctx, "uc.dlq.oversized")
+		return err == nil
+	})
 	if why := last.Header.Get(broker.HeaderError); !strings.Contains(why, "decode limit of 1048576 bytes") {
 		t.Errorf("dead letter says %q, want the decode limit named", why)
 	}
