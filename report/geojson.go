@@ -759,7 +759,7 @@ const featureGap = "unsurveyed gap"
 // one side has no feature, since the route does not reach it. Its
 // properties: conductor, from_group and to_group (the stations either side
 // of the stretch with no station), chainage_from_m, chainage_to_m,
-// length_m, median_spacing_m (the route's median station spacing),
+// length_m, median_spacing_m (the station spacing the gap is measured against: the route's median, or the stretch's own where wider),
 // spacing_ratio, used false, not_used (stations the line passes that the
 // route left out, if any) and a note in words.
 func (d *Document) routeGapFeatures(r *Route, n int) []feature {
@@ -788,7 +788,7 @@ func (d *Document) routeGapFeatures(r *Route, n int) []feature {
 				skipped = append(skipped, s.Key)
 			}
 		}
-		note := fmt.Sprintf("No station for %.0f m between %s and %s (chainage %.0f to %.0f m), %.1f times the route's median station spacing of %s m: "+
+		note := fmt.Sprintf("No station for %.0f m between %s and %s (chainage %.0f to %.0f m), %.1f times the station spacing of %s m about it: "+
 			"the survey did not cross the conductor here. This line only joins the stations either side; the conductor's position, depth, current and cover along it are not known, and may differ (a bore may run deeper, a cable may bend).",
 			g.Length, g.From, g.To, g.FromChainage, g.ToChainage, g.Ratio, trimFloat(g.Spacing))
 		props := map[string]any{

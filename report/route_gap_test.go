@@ -258,6 +258,22 @@ func TestRouteGapsRule(t *testing.T) {
 	if g := RouteGaps(route(threeMissed...)); len(g) != 1 || g[0].From != "T10" || g[0].To != "T11" {
 		t.Errorf("three missed: gaps %+v", g)
 	}
+	// Two pitches: 16 traverses 2 m apart over a joint bay, then 5 at 10 m.
+	var twoPitch []float64
+	for i := 0; i < 16; i++ {
+		twoPitch = append(twoPitch, 2*float64(i))
+	}
+	for i := 1; i <= 5; i++ {
+		twoPitch = append(twoPitch, 30+10*float64(i))
+	}
+	if g := RouteGaps(route(twoPitch...)); g != nil {
+		t.Errorf("two pitches: gaps %+v", g)
+	}
+	// A river in the 10 m stretch of a two-pitch route is still a gap.
+	riverTwo := append(append([]float64{}, twoPitch...), 140, 150, 160)
+	if g := RouteGaps(route(riverTwo...)); len(g) != 1 || g[0].Length != 60 || g[0].Spacing != 10 {
+		t.Errorf("river beyond two pitches: gaps %+v", g)
+	}
 	river := route(0, 10, 20, 30, 40, 50, 60, 120, 130, 140, 150, 160, 170, 180)
 	if g := RouteGaps(river); len(g) != 1 || g[0].From != "T07" || g[0].To != "T08" || g[0].Length != 60 || g[0].Ratio != 6 {
 		t.Errorf("river: gaps %+v", g)

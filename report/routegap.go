@@ -18,7 +18,7 @@ import (
 // for 180 m ... cover 1.0 to 11.1 m" (found in review).
 const (
 	// GapSpacingRatio: a stretch between neighbouring stations longer
-	// than this many times the route's median station spacing is a gap.
+	// than this many times the station spacing (RouteGaps) is a gap.
 	// A traverse walked a pace or two off its peg moves two intervals by
 	// a quarter of the spacing at most (1.25 times), and one traverse
 	// missed (an obstacle, a fit left out keeps its station, so this is
@@ -55,8 +55,9 @@ type RouteGap struct {
 // RouteGaps are the gaps of route r, in chainage order: the stretches
 // between neighbouring stations (used or not: a station whose fit failed
 // was still surveyed, and routeBridges draws across it) longer than
-// GapSpacingRatio times the median spacing between the route's stations
-// and than GapMinLength. Stations within max(RepeatGap, 0.5 m) of each
+// GapSpacingRatio times the spacing between the route's stations (the
+// larger of the route's median and the stretch's own, localSpacing) and
+// than GapMinLength. Stations within max(RepeatGap, 0.5 m) of each
 // other in chainage are one station (a route walked again), so that
 // repeats do not shrink the median. Nil for a nil route or one with fewer
 // than gapMinIntervals intervals.
@@ -102,15 +103,45 @@ func RouteGaps(r *Route) []RouteGap {
 	}
 	var out []RouteGap
 	for i, l := range steps {
-		if l > GapSpacingRatio*med && l > GapMinLength {
+		sp := math.Max(med, localSpacing(steps, i))
+		if l > GapSpacingRatio*sp && l > GapMinLength {
 			out = append(out, RouteGap{
 				From: distinct[i].key, To: distinct[i+1].key,
 				FromChainage: distinct[i].c, ToChainage: distinct[i+1].c,
-				Length: l, Spacing: med, Ratio: l / med,
+				Length: l, Spacing: sp, Ratio: l / sp,
 			})
 		}
 	}
 	return out
+}
+
+// gapLocalIntervals: the intervals either side of one that its local
+// spacing is the median of (localSpacing).
+const gapLocalIntervals = 3
+
+// localSpacing is the median of the up to gapLocalIntervals intervals on
+// each side of interval i of steps (not i itself): the pitch the survey
+// kept about it. A route walked at two pitches (2 m over a joint bay, 10 m
+// beyond) measures each stretch against its own pitch, so the wider pitch
+// is no gap; a gap within a stretch is measured against that stretch's pitch
+// (found in review: 16 traverses 2 m apart and 5 at 10 m gave five false gaps
+// against the 2 m median). 0 when i has no neighbour.
+func localSpacing(steps []float64, i int) float64 {
+	var near []float64
+	for j := max(0, i-gapLocalIntervals); j <= min(len(steps)-1, i+gapLocalIntervals); j++ {
+		if j != i {
+			near = append(near, steps[j])
+		}
+	}
+	if len(near) == 0 {
+		return 0
+	}
+	sort.Float64s(near)
+	n := len(near)
+	if n%2 == 1 {
+		return near[n/2]
+	}
+	return (near[n/2-1] + near[n/2]) / 2
 }
 
 // gapWords names route r's gaps for the summary's sentences: "60 m
@@ -126,7 +157,7 @@ func gapWords(r *Route) string {
 
 // RouteGapSentence says in a sentence where conductor 1's route has no
 // station (RouteGaps): "Not surveyed: 60 m between T07 and T13 (chainage
-// 60–120 m, 6.0 times the median station spacing of 10 m); the route is
+// 60–120 m, 6.0 times the station spacing of 10 m about it); the route is
 // drawn straight across it and the conductor's position, current and
 // cover there are not known." Empty when there is no gap or no route.
 func RouteGapSentence(d *Document) string {
@@ -139,7 +170,7 @@ func RouteGapSentence(d *Document) string {
 	}
 	var parts []string
 	for _, g := range gaps {
-		parts = append(parts, fmt.Sprintf("%.0f m between %s and %s (chainage %.0f–%.0f m, %.1f times the median station spacing of %s m)",
+		parts = append(parts, fmt.Sprintf("%.0f m between %s and %s (chainage %.0f–%.0f m, %.1f times the station spacing of %s m about it)",
 			g.Length, g.From, g.To, g.FromChainage, g.ToChainage, g.Ratio, trimFloat(g.Spacing)))
 	}
 	it := "it"
