@@ -290,7 +290,14 @@ func fitLinesFloor(p *Problem, set *Settings, wantFloor bool, floor *float64) (*
 	if !bad {
 		return res, nil
 	}
-	g := &fitter{sv: sv, set: &s, prob: p, scr: scr, holdSingle: true}
+	// The held fit is compared with the free one by chi-square, which a
+	// fit's current ramp (checkRamp) leaves out: it is fitted without the
+	// readings' times, so that it has no ramp either (found in review: a
+	// tee's held refit took a ramp and its chi-square rose from 1.52e3 to
+	// 1.95e3 against the free fit).
+	ph := *p
+	ph.Times = nil
+	g := &fitter{sv: sv, set: &s, prob: &ph, scr: scr, holdSingle: true}
 	res2, err2 := g.run()
 	if err2 != nil {
 		// The free fit stands (with its notes on what it did not resolve), or its error.
