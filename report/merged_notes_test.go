@@ -70,3 +70,25 @@ func TestSlightMisfitsMerged(t *testing.T) {
 		t.Errorf("row's message %q no longer counts the 4 notes", row.Message)
 	}
 }
+
+// TestMergedNotesKeepLineCounts: a count of lines is what a note says, not
+// a value, so "2 lines fit better" and "2-3 lines fit better" stay apart
+// (merged, a review found the tee's note no longer said which group hinted
+// at 3 lines), while the same count in two groups still merges.
+func TestMergedNotesKeepLineCounts(t *testing.T) {
+	d := fenwickLane(false)
+	better := func(n, chi string) string {
+		return n + " fit the readings better (chi-square lower by " + chi + ")"
+	}
+	d.Groups[0].Notes = []string{better("2 lines", "41")}
+	d.Groups[1].Notes = []string{better("2-3 lines", "97")}
+	d.Groups[2].Notes = []string{better("2 lines", "55")}
+	got := fitNotes(d)
+	want := []string{
+		"2 lines fit the readings better (chi-square lower by 41–55) (2 groups: T01, T03)",
+		"2-3 lines fit the readings better (chi-square lower by 97) (1 group: T02)",
+	}
+	if !reflect.DeepEqual(got, want) {
+		t.Errorf("notes\n%q\nwant\n%q", got, want)
+	}
+}

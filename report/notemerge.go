@@ -83,7 +83,7 @@ func noteNumbers(s string) []noteNumber {
 			start-- // a sign, not a range's dash
 		}
 		v, err := strconv.ParseFloat(s[start:j], 64)
-		if err != nil || namesSubject(s[:start]) {
+		if err != nil || namesSubject(s[:start]) || countsLines(s[j:]) {
 			continue
 		}
 		n := noteNumber{at: start, end: j, v: v, hi: v, mid: j}
@@ -99,6 +99,15 @@ func noteNumbers(s string) []noteNumber {
 		out = append(out, n)
 	}
 	return out
+}
+
+// countsLines reports whether the text after a number makes it a count of
+// lines ("2-3 lines fit the readings better", "1 line"): what the note says,
+// not a value, so notes that differ in it are not merged (found in review:
+// merged, the tee's note no longer said which group hinted at 3 lines).
+func countsLines(after string) bool {
+	return strings.HasPrefix(after, " line ") || strings.HasPrefix(after, " lines") || strings.HasPrefix(after, " line)") ||
+		strings.HasPrefix(after, " line,") || strings.HasPrefix(after, " line.") || after == " line"
 }
 
 // namesSubject reports whether the text before a number names what the
