@@ -49,24 +49,8 @@ current_a = %g
 	if code, _, errOut := cli(t, "simulate", sc, "-o", raw); code != 0 {
 		t.Fatalf("simulate: exit %d: %s", code, errOut)
 	}
-	data, err := os.ReadFile(raw)
-	if err != nil {
-		t.Fatal(err)
-	}
-	lines := strings.Split(string(data), "\n")
-	header := true
-	for i, l := range lines {
-		if l == "" || strings.HasPrefix(l, "#") {
-			continue
-		}
-		if header {
-			if !strings.HasPrefix(l, "time,x,y,z,bx,by,bz,") {
-				t.Fatalf("unexpected columns %q", l)
-			}
-			header = false
-			continue
-		}
-		c := strings.Split(l, ",")
+	out := filepath.Join(dir, name+".csv")
+	rewriteFieldCells(t, raw, out, func(c []string) {
 		for k := 4; k <= 6; k++ {
 			v, err := strconv.ParseFloat(c[k], 64)
 			if err != nil {
@@ -78,12 +62,7 @@ current_a = %g
 			}
 			c[k] = strconv.FormatFloat(v, 'f', 3, 64)
 		}
-		lines[i] = strings.Join(c, ",")
-	}
-	out := filepath.Join(dir, name+".csv")
-	if err := os.WriteFile(out, []byte(strings.Join(lines, "\n")), 0o644); err != nil {
-		t.Fatal(err)
-	}
+	})
 	return out
 }
 

@@ -19,25 +19,8 @@ import (
 // exactly), and returns how many values and rows it clipped.
 func clipLog(t *testing.T, src, dst string, rail, sd float64) (values, rows int) {
 	t.Helper()
-	raw, err := os.ReadFile(src)
-	if err != nil {
-		t.Fatal(err)
-	}
 	rng := rand.New(rand.NewPCG(7, 13))
-	lines := strings.Split(string(raw), "\n")
-	header := true
-	for i, l := range lines {
-		if l == "" || strings.HasPrefix(l, "#") {
-			continue
-		}
-		if header {
-			if !strings.HasPrefix(l, "time,x,y,z,bx,by,bz,") {
-				t.Fatalf("unexpected columns %q", l)
-			}
-			header = false
-			continue
-		}
-		c := strings.Split(l, ",")
+	rewriteFieldCells(t, src, dst, func(c []string) {
 		hit := false
 		for k := 4; k <= 6; k++ {
 			v, err := strconv.ParseFloat(c[k], 64)
@@ -53,12 +36,39 @@ func clipLog(t *testing.T, src, dst string, rail, sd float64) (values, rows int)
 		if hit {
 			rows++
 		}
+	})
+	return values, rows
+}
+
+// rewriteFieldCells writes to dst the simulate log src (columns time, x,
+// y, z, bx, by, bz, ...) with each data row's cells passed to edit, which
+// may change them in place (bx, by, bz are c[4:7]).
+func rewriteFieldCells(t *testing.T, src, dst string, edit func(c []string)) {
+	t.Helper()
+	raw, err := os.ReadFile(src)
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.Split(string(raw), "\n")
+	header := true
+	for i, l := range lines {
+		if l == "" || strings.HasPrefix(l, "#") {
+			continue
+		}
+		if header {
+			if !strings.HasPrefix(l, "time,x,y,z,bx,by,bz,") {
+				t.Fatalf("unexpected columns %q", l)
+			}
+			header = false
+			continue
+		}
+		c := strings.Split(l, ",")
+		edit(c)
 		lines[i] = strings.Join(c, ",")
 	}
 	if err := os.WriteFile(dst, []byte(strings.Join(lines, "\n")), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	return values, rows
 }
 
 // TestClippedReadingsLeftOut: a walked DC log over a 600 A line 1.1 m
