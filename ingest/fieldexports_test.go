@@ -158,18 +158,7 @@ func TestZonelessTimesWarned(t *testing.T) {
 
 	// Arrow text times: the batch and row of the first one without an
 	// offset.
-	sc := arrow.NewSchema([]arrow.Field{
-		{Name: "time", Type: arrow.BinaryTypes.String},
-		{Name: "bx", Type: arrow.PrimitiveTypes.Float64},
-		{Name: "by", Type: arrow.PrimitiveTypes.Float64},
-		{Name: "bz", Type: arrow.PrimitiveTypes.Float64},
-	}, nil)
-	p := writeArrowBatches(t, "text.arrows", sc, func(b *array.RecordBuilder) {
-		b.Field(0).(*array.StringBuilder).AppendValues([]string{"2026-04-21T08:40:00.5Z", "2026-04-21T08:40:01"}, nil)
-		for k := 1; k < 4; k++ {
-			b.Field(k).(*array.Float64Builder).AppendValues([]float64{1, 2}, nil)
-		}
-	})
+	p := writeTextTimeArrow(t, "text.arrows", []string{"2026-04-21T08:40:00.5Z", "2026-04-21T08:40:01"})
 	s, err = ReadSamples(p, WithAllocator(checked(t)))
 	if err != nil {
 		t.Fatal(err)
@@ -915,4 +904,24 @@ func TestSmallUnitsExact(t *testing.T) {
 			t.Errorf("Arrow %s %s: %.17g, want %.17g", c.unit, c.text, got, c.want)
 		}
 	}
+}
+
+// writeTextTimeArrow writes an Arrow stream named name of one batch: a text
+// time column holding times and bx, by, bz of i+1 nT at row i.
+func writeTextTimeArrow(t *testing.T, name string, times []string) string {
+	t.Helper()
+	sc := arrow.NewSchema([]arrow.Field{
+		{Name: "time", Type: arrow.BinaryTypes.String},
+		{Name: "bx", Type: arrow.PrimitiveTypes.Float64},
+		{Name: "by", Type: arrow.PrimitiveTypes.Float64},
+		{Name: "bz", Type: arrow.PrimitiveTypes.Float64},
+	}, nil)
+	return writeArrowBatches(t, name, sc, func(b *array.RecordBuilder) {
+		for i, tm := range times {
+			b.Field(0).(*array.StringBuilder).Append(tm)
+			for k := 1; k < 4; k++ {
+				b.Field(k).(*array.Float64Builder).Append(float64(i + 1))
+			}
+		}
+	})
 }

@@ -5,9 +5,6 @@ import (
 	"strings"
 	"testing"
 	"time"
-
-	"github.com/apache/arrow-go/v18/arrow"
-	"github.com/apache/arrow-go/v18/arrow/array"
 )
 
 // localLog writes a log of the instants at (UTC), each time written by
@@ -109,20 +106,11 @@ func TestTimeOffsetLocalTimes(t *testing.T) {
 		}
 	}
 	// Arrow text column too.
-	sc := arrow.NewSchema([]arrow.Field{
-		{Name: "time", Type: arrow.BinaryTypes.String},
-		{Name: "bx", Type: arrow.PrimitiveTypes.Float64},
-		{Name: "by", Type: arrow.PrimitiveTypes.Float64},
-		{Name: "bz", Type: arrow.PrimitiveTypes.Float64},
-	}, nil)
-	p := writeArrowBatches(t, "local.arrows", sc, func(b *array.RecordBuilder) {
-		for _, tm := range at {
-			b.Field(0).(*array.StringBuilder).Append(tm.In(cest).Format("2006-01-02T15:04:05.000"))
-			for k := 1; k < 4; k++ {
-				b.Field(k).(*array.Float64Builder).Append(1)
-			}
-		}
-	})
+	var inCEST []string
+	for _, tm := range at {
+		inCEST = append(inCEST, tm.In(cest).Format("2006-01-02T15:04:05.000"))
+	}
+	p := writeTextTimeArrow(t, "local.arrows", inCEST)
 	r, err = Open(p, WithTimeOffset(2*time.Hour))
 	if err != nil {
 		t.Fatal(err)
@@ -197,20 +185,11 @@ func TestDateOrder(t *testing.T) {
 		}
 	}
 	// An Arrow string column of day-first dates.
-	sc := arrow.NewSchema([]arrow.Field{
-		{Name: "time", Type: arrow.BinaryTypes.String},
-		{Name: "bx", Type: arrow.PrimitiveTypes.Float64},
-		{Name: "by", Type: arrow.PrimitiveTypes.Float64},
-		{Name: "bz", Type: arrow.PrimitiveTypes.Float64},
-	}, nil)
-	p := writeArrowBatches(t, "dates.arrows", sc, func(b *array.RecordBuilder) {
-		for _, tm := range at {
-			b.Field(0).(*array.StringBuilder).Append(tm.Format("02/01/2006 15:04:05.000"))
-			for k := 1; k < 4; k++ {
-				b.Field(k).(*array.Float64Builder).Append(1)
-			}
-		}
-	})
+	var dates []string
+	for _, tm := range at {
+		dates = append(dates, tm.Format("02/01/2006 15:04:05.000"))
+	}
+	p := writeTextTimeArrow(t, "dates.arrows", dates)
 	s, err := ReadSamples(p, WithDateOrder(DateOrderDMY))
 	if err != nil {
 		t.Fatal(err)
