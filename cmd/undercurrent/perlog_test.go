@@ -210,6 +210,18 @@ func TestLocateBaseOfOneDay(t *testing.T) {
 	if code == 0 || !oneHasAll([]string{errOut}, "does not overlap", "leave --base out") {
 		t.Errorf("a base record of another day only: exit %d, want a refusal saying what to do:\n%s", code, errOut)
 	}
+	// Two logs, neither of its day: refused too.
+	m := [3][3]float64{{1, 0, 0}, {0, 1, 0}, {0, 0, 1}}
+	sc := filepath.Join(dir, "day3.toml")
+	if err := os.WriteFile(sc, []byte(twoSensorDay(703, "2026-05-14T08:00:00Z", 20, [3]float64{}, m, false)), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	day3 := filepath.Join(dir, "day3.csv")
+	mustCLI(t, "simulate", sc, "-o", day3)
+	code, _, errOut = cli(t, "locate", "--group-by", "group", "--base", base1, day2, day3)
+	if code == 0 || !oneHasAll([]string{errOut}, "does not overlap", "overlaps none of the 2 logs", "leave --base out") {
+		t.Errorf("a base record of neither log's day: exit %d, want a refusal saying what to do:\n%s", code, errOut)
+	}
 }
 
 // TestLocateSeveralLogsColumnHint: a column missing from one of several
