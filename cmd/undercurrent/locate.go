@@ -35,7 +35,13 @@ type locateOptions struct {
 	// curRef is --current-reference and its flags (currentref.go).
 	curRef currentRefFlags
 
-	calibration string
+	// calibration is the bare --calibration, applied to every log not
+	// named in calPerLog (--calibration LOG=CAL.json, perlog.go);
+	// calibrations are the values as given.
+	calibration  string
+	calibrations []string
+	calPerLog    []perLogValue
+
 	base        string   // the base log, or the base logs joined by " + " for messages
 	bases       []string // the base logs given (--base, once or more)
 	baseHold    float64
@@ -120,7 +126,7 @@ type locateOptions struct {
 var resultFiles = []string{report.FileJSON, report.FileCSV, report.FileFindings, report.FileGeoJSON, report.FileHTML}
 
 func (o *locateOptions) setFlags(fs *pflag.FlagSet) {
-	fs.StringVar(&o.calibration, "calibration", "", "apply the sensor calibration in `CAL.json` (from undercurrent calibrate)")
+	fs.StringArrayVar(&o.calibrations, "calibration", nil, "apply the sensor calibration in `CAL.json` (from undercurrent calibrate); for logs of different sensors give each its own as LOG=CAL.json, again for each (LOG the log as given or its base name), and a bare CAL.json for the logs not named")
 	fs.Float64Var(&o.mountYaw, "mount-yaw", 0, "the magnetometer is turned on its mount: its field as read is turned `DEG` degrees anticlockwise seen from above (the turn the check against the base record reports, with its sign); the readings are turned back by it about the sensor's vertical axis, after the calibration and before the attitude")
 	fs.StringVar(&o.fieldAxes, "field-axes", "", "what the field columns bx, by, bz hold, `A,B,C` each one of e, n, u (east, north, up) or w, s, d (west, south, down): n,e,d for a field logged north, east, down with positions east, north, up; e,s,d for a sensor mounted upside down; n,e,u for bx and by swapped; the field alone is read so (--frame turns the positions too), after the calibration and before --mount-yaw; for an enu log only")
 	o.curRef.setFlags(fs)
@@ -180,6 +186,13 @@ func (o *locateOptions) check(fs *pflag.FlagSet) error {
 	if fs != nil && fs.Lookup("base") != nil {
 		// The flag set binds o.bases anew for each run; o.base follows.
 		o.base = strings.Join(o.bases, " + ")
+	}
+	if fs != nil && fs.Lookup("calibration") != nil {
+		// The flag set binds o.calibrations anew for each run.
+		var err error
+		if o.calibration, o.calPerLog, err = splitPerLog("calibration", o.calibrations, calibrationIsBare); err != nil {
+			return err
+		}
 	}
 	o.baseHoldSet = fs != nil && fs.Changed("base-hold")
 	if o.baseHold < 0 || math.IsNaN(o.baseHold) {
@@ -346,7 +359,12 @@ groups that show it and sized from the levels either side), cover shallower
 than --min-cover, fits that are poor or ambiguous, and magnetised objects
 (a buried steel item beside the conductor, found by refitting anomalous
 groups with a point dipole). Groups with the same value in several logs are
-fitted together.
+fitted together. Logs of different sensors each take their own
+calibration (--calibration LOG=CAL.json, again for each log; a bare
+CAL.json for the logs not named); a --base record that overlaps only some
+of the logs corrects those and warns of the others; logs whose columns,
+units or time zones differ are each run through "undercurrent convert"
+with their own input flags first.
 
 With --freq, each window averages the field along the sensor's path, and
 the fit models that average (a straight walk within each window); when the
@@ -847,14 +865,21 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 	if err := checkSurveyCopies(logs); err != nil {
 		return nil, err
 	}
+	// Each log's calibration (perlog.go): its own, or the bare one.
+	// cal is the first one applied, for the checks made once for the
+	// survey (the offset turning with the sensor, the field against the
+	// base record's).
+	cals, calPaths, err := loadCalibrations(o, logs, doc)
+	if err != nil {
+		return nil, err
+	}
 	var cal *calibrate.Calibration
-	if o.calibration != "" {
-		var err error
-		if cal, err = calibrate.Load(o.calibration); err != nil {
-			return nil, err
+	var calPath string
+	for k := range logs {
+		if cals[k] != nil {
+			cal, calPath = cals[k], calPaths[k]
+			break
 		}
-		doc.Calibration = &report.Correction{File: o.calibration, Summary: cal.Summary()}
-		doc.Inputs = append(doc.Inputs, fileInput("calibration", o.calibration, 0))
 	}
 	if err := o.coil.load(doc, o.freq); err != nil {
 		return nil, err
@@ -875,7 +900,7 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		}
 	}
 	if err := checkSurveyPositions(logs, opts); err != nil {
-		return nil, err
+		return nil, withPerLogNote(err, logs)
 	}
 	var base *ingest.Samples
 	var baseLeftOut []int // base rows left out as spikes
@@ -923,6 +948,10 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 	// are not geographic (the reader's is left out: baseOptions).
 	baseFrameNote, baseFrameSaid := "", false
 	baseFieldSaid := false // baseInConductorField's warning given
+	// The logs the base record lies wholly outside of, left uncorrected,
+	// and the errors that said so (baseUncovered).
+	var baseApart []string
+	var baseApartErr []error
 	if base != nil {
 		baseFrameNote = calibrate.BaseFrameWarning(base)
 	}
@@ -935,7 +964,7 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		s, rows, warns, err := o.read.readLogRows(ctx, path, opts, !o.coil.on())
 		sv.warnings = append(sv.warnings, warns...)
 		if err != nil {
-			return nil, err
+			return nil, withPerLogNote(err, logs)
 		}
 		// A DC log in uT read as nT (unitslip.go).
 		if !o.coil.on() && !sv.ac && !o.read.fieldUnitGiven() {
@@ -1102,7 +1131,7 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		if doc.Site == "" {
 			doc.Site = s.Meta["site"]
 		}
-		if cal != nil {
+		if cal := cals[k]; cal != nil {
 			// The calibration belongs to the sensor's own axes, the
 			// columns as the file has them. ingest has turned a log read
 			// with --frame ned to east, north, up (x and y swapped, z
@@ -1119,7 +1148,12 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			}
 			// A calibration of another sensor, or a log whose corrected
 			// field disagrees with the calibration's reference.
-			sv.warnings = append(sv.warnings, c.Check(s)...)
+			for _, w := range c.Check(s) {
+				if len(logs) > 1 && strings.Contains(w, "another sensor") {
+					w += fmt.Sprintf(" With logs of several sensors, give each its own: --calibration %s=CAL.json (%s's calibration is %s)", filepath.Base(path), path, calPaths[k])
+				}
+				sv.warnings = append(sv.warnings, w)
+			}
 			if err := c.Apply(s); err != nil {
 				return nil, fmt.Errorf("%s: %w", path, err)
 			}
@@ -1185,6 +1219,7 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 				sv.warnings = append(sv.warnings, fmt.Sprintf("%s: removed %d spikes of %d readings", path, rep.Removed, rep.Removed+rep.Kept))
 			}
 		}
+		var rep *calibrate.BaseReport
 		if base != nil {
 			hold := 0.0 // the default: five base sample intervals, 60 to 300 s
 			if o.baseHoldSet {
@@ -1194,16 +1229,36 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			// above or below the default (the same as the hold's); 0
 			// allows no reading missing. Readings left out as spikes are
 			// no gap.
-			rep, err := calibrate.BaseCorrect(s, base, &calibrate.BaseSettings{MaxHold: hold, MaxGap: hold, LeftOut: baseLeftOut})
+			var err error
+			rep, err = calibrate.BaseCorrect(s, base, &calibrate.BaseSettings{MaxHold: hold, MaxGap: hold, LeftOut: baseLeftOut})
+			var apart *calibrate.BaseNoOverlapError
 			if err != nil {
 				if h := zoneShiftHint(base, s); h != "" && strings.Contains(err.Error(), "does not") {
 					err = fmt.Errorf("%w; %s", err, h)
+				}
+			}
+			if errors.As(err, &apart) && len(logs) > 1 {
+				// A base record of one day beside logs of several: the
+				// logs it covers are corrected, the others left as read
+				// and named (baseUncovered), and the run is refused only
+				// when it covers none (found in review: a two-day merge
+				// with one day's base was refused whole).
+				baseApart = append(baseApart, path)
+				baseApartErr = append(baseApartErr, err)
+				err = nil
+				rep = nil
+			}
+			if err != nil {
+				if errors.As(err, &apart) {
+					err = fmt.Errorf("%w; %s", err, baseApartHint)
 				}
 				if len(baseLeftOut) > 0 {
 					err = fmt.Errorf("%w (%s of the base log were left out as spikes, see the warning below; they are readings, not gaps)", err, plural(len(baseLeftOut), "reading"))
 				}
 				return nil, err
 			}
+		}
+		if base != nil && rep != nil {
 			baseNotes = append(baseNotes, baseSummary(path, rep))
 			if w := baseInConductorField(o.base, path, rep); w != "" && !baseFieldSaid {
 				baseFieldSaid = true
@@ -1274,6 +1329,14 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			return nil, err
 		}
 	}
+	if len(baseApart) > 0 {
+		w, err := baseUncovered(o.base, logs, baseApart, baseApartErr)
+		if err != nil {
+			return nil, err
+		}
+		sv.alerts = append(sv.alerts, w)
+		baseNotes = append(baseNotes, "not corrected (outside the base record): "+strings.Join(baseApart, ", "))
+	}
 	if base != nil {
 		doc.BaseStation = &report.Correction{File: o.base, Summary: strings.Join(baseNotes, "; ")}
 	}
@@ -1287,7 +1350,7 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 	// The survey's field against the base record's is compared once the
 	// groups are fitted (baseCheck.warnings): a DC survey's level is the
 	// fits' own backgrounds, which hold no conductor's field.
-	sv.baseCheck = &baseCheck{cal: cal, calPath: o.calibration, enu: enu}
+	sv.baseCheck = &baseCheck{cal: cal, calPath: calPath, enu: enu}
 	if !o.coil.on() {
 		sv.baseCheck.base, sv.baseCheck.raw = base, &field
 		if org := doc.Frame.Origin; org != nil {
