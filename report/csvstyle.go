@@ -67,7 +67,7 @@ func (r *csvRowWriter) Write(row []string) error {
 // other column holds a number or is empty (TestCSVDecimalCommaNumbers).
 var csvTextColumns = []string{
 	"group", "kind", "signal", "depth_reference", "ok", "problem", "used", "left_out",
-	"uncertainty_note", "fit",
+	"uncertainty_note", "fit", "log",
 }
 
 // findingsTextColumns are the columns of findings.csv that hold text.

@@ -280,6 +280,12 @@ type Group struct {
 	// Key is the group's value of the grouping column; empty when the
 	// run was not grouped.
 	Key string `json:"key"`
+	// Log is the survey log the group's readings come from (of its first
+	// reading, where a traverse runs on into the next file), its path as
+	// given; empty when not known. Which log (crew, day) a group came
+	// from could not be read from the outputs where its name stood bare
+	// beside another log's (found in review).
+	Log string `json:"log,omitempty"`
 	// Points is the number of readings fitted.
 	Points int `json:"points"`
 	// Chainage is the group's distance along the route, m; nil without

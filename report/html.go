@@ -95,9 +95,12 @@ type view struct {
 	CautionShort string
 	// GroupCols is the number of columns of the table of every group.
 	GroupCols int
-	Plan      template.HTML
-	Current   template.HTML
-	Depth     template.HTML
+	// LogCol is true when the groups come from more than one survey log:
+	// the table of every group then names each group's log (Group.Log).
+	LogCol  bool
+	Plan    template.HTML
+	Current template.HTML
+	Depth   template.HTML
 	// Phase is the AC phase along the route (empty for DC), and
 	// FirstWalk the route's Route.FirstWalk, which the current plot's
 	// caption names.
@@ -195,6 +198,7 @@ type findingRow struct {
 // one entry per source, shown one under the other.
 type groupRow struct {
 	Key, Chainage, RMS, Points, Status string
+	Log                                string
 	// StatusShort is Status without why a fit failed or is poor, for
 	// print, where the column is too narrow for the why; empty for a
 	// sound fit.
@@ -223,6 +227,14 @@ func newView(d *Document) (*view, error) {
 		v.GroupCols++
 	}
 	if d.Signal.Mode == SignalAC {
+		v.GroupCols++
+	}
+	logs := map[string]bool{}
+	for _, g := range d.Groups {
+		logs[g.Log] = true
+	}
+	if len(logs) > 1 {
+		v.LogCol = true
 		v.GroupCols++
 	}
 	v.Title = d.Title
@@ -538,7 +550,7 @@ func (v *view) where(f Finding) string {
 }
 
 func (v *view) groupRow(g *Group) groupRow {
-	r := groupRow{Key: g.Key, Points: fmt.Sprint(g.Points), RMS: "–", Bad: !g.OK || g.Problem != ""}
+	r := groupRow{Key: g.Key, Log: g.Log, Points: fmt.Sprint(g.Points), RMS: "–", Bad: !g.OK || g.Problem != ""}
 	if rms, ok := GroupRMS(g); ok {
 		r.RMS = rms
 	}

@@ -2452,6 +2452,7 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 		}
 		fits[i].MeasuredNoise = g.measuredNoise(sv.ac)
 		fits[i].Traverse = traverseOf(g.key, g.from, sv.rewalks, sv.reused)
+		fits[i].Log = g.from
 		if len(sv.logs) > 1 {
 			fits[i].Walk = logLabel(g.from, sv.logs)
 			if n := sv.rewalks[rewalkKey(g.from, g.key)]; n > 1 {
