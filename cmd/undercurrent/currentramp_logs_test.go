@@ -10,7 +10,7 @@ import (
 // water main"): a pipe 1.30 m deep along (0,0)->(250,20) whose current
 // drops by 17.5 % at chainage 185 m, walked by a crew whose sensor has its
 // own uncorrected offset and soft-iron matrix (no calibration given).
-func twoSensorDay(seed int, start, sensor string, count int, first float64, currents string) string {
+func rampSensorDay(seed int, start, sensor string, count int, first float64, currents string) string {
 	return fmt.Sprintf(`name = "brackenridge"
 site = "Brackenridge Common water main (invented)"
 seed = %d
@@ -50,13 +50,13 @@ currents_a = %s
 // Fails before the guard judged each log apart.
 func TestCurrentRampGuardPerLog(t *testing.T) {
 	dir := t.TempDir()
-	day1 := simulateText(t, dir, "day1", twoSensorDay(501, "2026-05-12T07:30:00Z", `[sensor]
+	day1 := simulateText(t, dir, "day1", rampSensorDay(501, "2026-05-12T07:30:00Z", `[sensor]
 height_m = 0.25
 noise_nt = 1.0
 sample_rate_hz = 10.0
 offset_nt = [310.0, -240.0, 180.0]
 matrix = [[1.040, 0.012, -0.008], [0.012, 0.965, 0.015], [-0.008, 0.015, 0.997]]`, 13, 0, "[2, 1.65]"), ".csv")
-	day2 := simulateText(t, dir, "day2", twoSensorDay(502, "2026-05-13T06:45:00Z", `[sensor]
+	day2 := simulateText(t, dir, "day2", rampSensorDay(502, "2026-05-13T06:45:00Z", `[sensor]
 height_m = 0.30
 noise_nt = 1.5
 sample_rate_hz = 5.0
