@@ -13,6 +13,7 @@ import (
 	"github.com/apache/arrow-go/v18/arrow"
 	"github.com/apache/arrow-go/v18/arrow/array"
 	"github.com/apache/arrow-go/v18/arrow/memory"
+	"golang.org/x/text/unicode/norm"
 )
 
 // plan is how one input's columns become canonical columns.
@@ -419,14 +420,16 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 	}
 	p.inFrame = frame
 
+	// A mapping names a column exactly, else ignoring case and blanks;
+	// both compare names in Unicode form NFC (sameName).
 	find := func(name string) int {
 		for i, h := range header {
-			if h == name {
+			if sameName(h, name, false) {
 				return i
 			}
 		}
 		for i, h := range header {
-			if strings.EqualFold(strings.TrimSpace(h), name) {
+			if sameName(h, name, true) {
 				return i
 			}
 		}
@@ -781,7 +784,7 @@ func unitLikeWord(w string) bool {
 }
 
 var (
-	fieldUnitWord = regexp.MustCompile(`(?i)^((f|p|n|u|µ|μ|m|k|M|G)?(t|g|oe)|(femto|pico|nano|micro|milli|kilo|mega)?(teslas?|gauss|gammas?|oersteds?))$`)
+	fieldUnitWord = regexp.MustCompile(`(?i)^((f|p|n|u|µ|μ|m|k|M|G)?(t|g|oe)|(femto|pico|nano|micro|milli|kilo|mega)?(teslas?|gauss|gammas?|oersteds?)|(?-i:γ))$`)
 	// A number and a one-letter unit: "0.1 T", "1e-4T", "T x10", "10G".
 	numberUnit = regexp.MustCompile(`^([x×*/]\s*)?[-+]?([0-9]+([.,][0-9]*)?|[.,][0-9]+)([eE][-+]?[0-9]+)?\s*[*·×]?\s*[TtGgV]$|^[TtGgV]\s*[x×*/·]\s*[-+]?([0-9]+([.,][0-9]*)?|[.,][0-9]+)([eE][-+]?[0-9]+)?$`)
 	volts      = regexp.MustCompile(`^(m|u|µ|μ)V$`)
@@ -988,7 +991,7 @@ func (p *plan) checkDuplicates(headerLine int) error {
 	if headerLine > 0 {
 		where = fmt.Sprintf(":%d", headerLine)
 	}
-	norm := func(h string) string { return strings.ToLower(strings.TrimSpace(h)) }
+	key := func(h string) string { return strings.ToLower(strings.TrimSpace(norm.NFC.String(h))) }
 	for c := 0; c < nCanon; c++ {
 		i := p.src[c]
 		if i < 0 {
@@ -1000,9 +1003,9 @@ func (p *plan) checkDuplicates(headerLine int) error {
 			if j == i {
 				continue
 			}
-			same := norm(h) == norm(name)
+			same := key(h) == key(name)
 			if exact {
-				same = h == name
+				same = sameName(h, name, false)
 			}
 			if !same {
 				continue
@@ -1027,7 +1030,7 @@ func (p *plan) checkDuplicates(headerLine int) error {
 		}
 		if p.auto[c] {
 			for j, h := range p.header {
-				if j == i || norm(h) == norm(name) {
+				if j == i || key(h) == key(name) {
 					continue
 				}
 				if c2, _, _, ok := p.autoName(h); ok && c2 == c && !p.uses(j) {
@@ -1039,7 +1042,7 @@ func (p *plan) checkDuplicates(headerLine int) error {
 	}
 	first := map[string]int{}
 	for j, h := range p.header {
-		k := norm(h)
+		k := key(h)
 		i, seen := first[k]
 		if !seen {
 			first[k] = j
@@ -1156,6 +1159,7 @@ type rawBatch struct {
 	naiveLine int
 	naiveText string
 	nulLine   int // first line of NUL bytes alone, skipped (text formats)
+	badText   int // first line of a text value not UTF-8, read as Windows-1252 (CSV)
 	// noFix counts the readings left out at latitude 0, longitude 0
 	// (dropNoFix); noFixRow holds the rows of the first few in the batch
 	// as read, noFixLine their source lines (text formats).
@@ -1171,7 +1175,7 @@ func (rb *rawBatch) reset(p *plan) {
 	}
 	rb.group = rb.group[:0]
 	rb.line = rb.line[:0]
-	rb.naiveLine, rb.naiveText, rb.nulLine = 0, "", 0
+	rb.naiveLine, rb.naiveText, rb.nulLine, rb.badText = 0, "", 0, 0
 	rb.noFix, rb.noFixRow, rb.noFixLine = 0, rb.noFixRow[:0], rb.noFixLine[:0]
 }
 
