@@ -755,6 +755,10 @@ type survey struct {
 	// say which logs' on-state readings alone were fitted.
 	interrupted map[string]bool
 	intNotes    []string
+	// leaky holds, for the AC logs in which a fitted mains line too strong
+	// for its distance leaks into the signal, why their groups are not
+	// sound (demodPlan.strongLine).
+	leaky map[string]string
 	// baseGaps are the gaps of the base record that survey readings fell
 	// in (basegaps.go).
 	baseGaps []baseGapUse
@@ -2122,7 +2126,16 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 	}
 	res, _, warns, hints, err := demodulateACLeftOut(o, s, sv.clipGaps[s.Source]) // acchecks.go
 	if err != nil {
-		return noWindowAdvice(err, o)
+		return noWindowAdvice(err, o, s)
+	}
+	if w, why := (demodPlan{mains: o.mains, fs: logRate(s)}).strongLine(s, res); w != "" {
+		sv.warnings = append(sv.warnings, s.Source+": "+w)
+		if why != "" {
+			if sv.leaky == nil {
+				sv.leaky = map[string]string{}
+			}
+			sv.leaky[s.Source] = why
+		}
 	}
 	if hints.unchecked {
 		sv.unchecked = append(sv.unchecked, uncheckedLog{source: s.Source, lines: hints.lines, atFreq: hints.atFreq})
@@ -2187,8 +2200,9 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 // noWindowAdvice adds to a refusal for want of one whole demodulation
 // window (calibrate.NoWindowError) what the user can do: repair the time
 // column when breaks in it cut the log short, or give a window that fits
-// in the longest run.
-func noWindowAdvice(err error, o *locateOptions) error {
+// in the longest run, saying when a window that short cannot fit a mains
+// line beside the signal apart (no window then fits both).
+func noWindowAdvice(err error, o *locateOptions, s *ingest.Samples) error {
 	var nw *calibrate.NoWindowError
 	if !errors.As(err, &nw) {
 		return err
@@ -2206,7 +2220,7 @@ func noWindowAdvice(err error, o *locateOptions) error {
 		do = append(do, "log without pauses")
 	}
 	if cycles := math.Floor(nw.LongestS*o.freq + 1e-9); o.freq > 0 && cycles >= 3 {
-		do = append(do, fmt.Sprintf("give a window that fits in the longest run, --window %.4g or shorter (%.0f cycles of %g Hz)", cycles/o.freq, cycles, o.freq))
+		do = append(do, fmt.Sprintf("give a window that fits in the longest run, --window %.4g or shorter (%.0f cycles of %g Hz)", cycles/o.freq, cycles, o.freq)+shortClash(o, s, cycles/o.freq))
 	}
 	if len(do) == 0 {
 		return err
@@ -2429,6 +2443,15 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 			}
 		}
 		head.Warnings = append(kept, w)
+		// Phases then compare within groups only (the summary's header).
+		head.Signal.PhasesWithinGroups = true
+	}
+	for _, g := range sv.groups {
+		// Demodulated at an estimate, whose own uncertainty turns the
+		// phase from group to group (its warning says so).
+		if g.estimated {
+			head.Signal.PhasesWithinGroups = true
+		}
 	}
 	for _, l := range sv.looseLogs {
 		var gs []*group
@@ -2508,6 +2531,8 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 	baseGapsDocument(doc, sv)
 	// Groups of a log with an interrupted current fitted as it is.
 	interruptedDocument(doc, sv)
+	// Groups of a log beside a strong mains line that leaks (acchecks.go).
+	leakyDocument(doc, sv)
 	// Build puts a misfit every group shares first; an alert that names a
 	// cause (spikes left in, a route fitted as one line) still leads.
 	doc.Warnings = alertsFirst(doc.Warnings, alerts)
@@ -2938,13 +2963,13 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration, walked 
 	depthCol := doc.DepthReference.Kind != report.DepthBelowGround
 	switch {
 	case !coverKnown:
-		fmt.Fprintf(w, "depths are %s; currents %s, one-sigma uncertainties\n", ref, map[bool]string{true: "RMS with phase angle (∠, " + report.PhaseAngleWords + ")", false: "DC"}[doc.Signal.Mode == report.SignalAC])
+		fmt.Fprintf(w, "depths are %s; currents %s, one-sigma uncertainties\n", ref, map[bool]string{true: "RMS with phase angle (∠, " + report.PhaseWords(doc.Signal) + ")", false: "DC"}[doc.Signal.Mode == report.SignalAC])
 		fmt.Fprintln(w, report.NoCoverSentence)
 	case depthCol:
 		fmt.Fprintf(w, "cover is the depth below the ground: the depth %s less the sensors' %.2f m height above the ground; currents %s, one-sigma uncertainties\n",
-			ref, doc.DepthReference.SensorHeight, map[bool]string{true: "RMS with phase angle (∠, " + report.PhaseAngleWords + ")", false: "DC"}[doc.Signal.Mode == report.SignalAC])
+			ref, doc.DepthReference.SensorHeight, map[bool]string{true: "RMS with phase angle (∠, " + report.PhaseWords(doc.Signal) + ")", false: "DC"}[doc.Signal.Mode == report.SignalAC])
 	default:
-		fmt.Fprintf(w, "cover is the depth %s; currents %s, one-sigma uncertainties\n", ref, map[bool]string{true: "RMS with phase angle (∠, " + report.PhaseAngleWords + ")", false: "DC"}[doc.Signal.Mode == report.SignalAC])
+		fmt.Fprintf(w, "cover is the depth %s; currents %s, one-sigma uncertainties\n", ref, map[bool]string{true: "RMS with phase angle (∠, " + report.PhaseWords(doc.Signal) + ")", false: "DC"}[doc.Signal.Mode == report.SignalAC])
 	}
 	if robustGroups(doc) > 0 {
 		// The sigmas of Huber-weighted fits are large-sample ones (the
