@@ -250,6 +250,9 @@ func newCSVReader(name string, rd io.Reader, cfg *config) (*csvReader, error) {
 	if r.decComma && r.delim == ',' && !r.ws {
 		return nil, fileErr(name, nil, "decimal commas need a delimiter other than the comma (in a comma-delimited file they are not read, quoted or not): save the file again with ';' as the delimiter, or with decimal points")
 	}
+	if err := r.checkDigitGrouping(lineNo + 1 + bytes.Count(carry, []byte{'\n'})); err != nil {
+		return nil, err
+	}
 	if r.decComma {
 		pl.meta["decimal_separator"] = ","
 		pl.buildSchema()
@@ -898,6 +901,8 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch, plain bool) 
 					case hint != "":
 						// A time of day or a local date: its comma or
 						// points are not a number's.
+					case groupingHint(t, r.decComma) != "":
+						what += groupingHint(t, r.decComma)
 					case r.decComma && bytes.IndexByte(t, '.') >= 0:
 						// Only a point the setting rejects: "+0200" or a
 						// word held none, and the hint sent the user

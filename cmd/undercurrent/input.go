@@ -681,6 +681,7 @@ func cliWording(s string) string {
 	s = strings.ReplaceAll(s, "(try units ", "(try --unit ")
 	s = strings.ReplaceAll(s, "(try columns ", "(try --column ")
 	s = strings.ReplaceAll(s, "the option WithDecimalComma(true), on the command line --decimal-comma", "--decimal-comma")
+	s = strings.ReplaceAll(s, "the option WithDecimalComma(false), on the command line --decimal-comma=false", "--decimal-comma=false")
 	s = strings.ReplaceAll(s, "(WithFrame(FrameSensor), on the command line --frame sensor)", "(--frame sensor)")
 	s = strings.ReplaceAll(s, "(WithFrame, on the command line --frame)", "(--frame)")
 	s = mappingHint.ReplaceAllString(s, "with --column $1=NAME")
