@@ -114,6 +114,9 @@ func Inspect(path string, opts ...Option) (*Inspection, error) {
 			used[pl.src[c]] = true
 		}
 	}
+	if pl.timeJoin >= 0 {
+		used[pl.timeJoin] = true
+	}
 	for i, h := range pl.header {
 		if !used[i] {
 			in.Unused = append(in.Unused, h)

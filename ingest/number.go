@@ -244,7 +244,7 @@ func timeHint(b []byte, order DateOrder, bad string) string {
 		return n == 2 || n == 3
 	}
 	if clock(b) {
-		return " (a time of day without its date? time needs the date too: join a separate date column to it, as in 2026-04-21T08:40:00Z)"
+		return " (a time of day without its date? time needs the date too: join a separate date column to it: map time to both, DATE+TIME (on the command line --column time=DATE+TIME), or write times as in 2026-04-21T08:40:00Z)"
 	}
 	if parts, _, _, ok := localDate(b); ok {
 		if order != DateOrderNone {

@@ -112,7 +112,7 @@ func isIAGAFile(path string) bool {
 var fieldUnits = ingest.FieldUnits
 
 func (f *readFlags) add(fs *pflag.FlagSet) {
-	fs.StringSliceVar(&f.columns, "column", nil, "map canonical columns to the file's names: `CANON=NAME`, e.g. bx=Bx_uT,time=t_s,group=traverse (repeatable; a name holding a comma is given as it is, --column 'bx=Field X, nT': a part after a comma without = continues the name)")
+	fs.StringSliceVar(&f.columns, "column", nil, "map canonical columns to the file's names: `CANON=NAME`, e.g. bx=Bx_uT,time=t_s,group=traverse (repeatable; a name holding a comma is given as it is, --column 'bx=Field X, nT': a part after a comma without = continues the name; time=DATE+TIME joins a date column and a time-of-day column with a space before the time is parsed, as in time=Datum+Uhrzeit, CSV only)")
 	fs.StringSliceVar(&f.units, "unit", nil, "units of columns: `CANON=UNIT`, e.g. bx=uT,time=ms (field "+fieldUnits+", each also with the size of a count before it for logs in counts, as bx=0.1nT or bx=100pT, or V/mV/uV/nV for induction coils with locate --coil; length m/cm/mm/km/ft; time s/ms/us/ns, or UTC for timestamps without a zone that are UTC; repeatable)")
 	fs.StringSliceVar(&f.columnsOld, "columns", nil, "same as --column")
 	fs.StringSliceVar(&f.unitsOld, "units", nil, "same as --unit")
@@ -679,6 +679,7 @@ func inspectCtx(ctx context.Context, path string, opts ...ingest.Option) (*inges
 // with --column, and a count of one takes the singular.
 func cliWording(s string) string {
 	s = strings.ReplaceAll(s, "(try units ", "(try --unit ")
+	s = strings.ReplaceAll(s, "map time to both, DATE+TIME (on the command line --column time=DATE+TIME)", "--column time=DATE+TIME")
 	s = strings.ReplaceAll(s, "(try columns ", "(try --column ")
 	s = strings.ReplaceAll(s, "the option WithDecimalComma(true), on the command line --decimal-comma", "--decimal-comma")
 	s = strings.ReplaceAll(s, "the option WithDecimalComma(false), on the command line --decimal-comma=false", "--decimal-comma=false")
