@@ -221,7 +221,7 @@ func (p *plan) naiveTime(where, what string, typed bool) {
 		return
 	}
 	p.naiveWarned = true
-	fix := "write the offset into the times (2026-04-21T09:40:00+01:00)"
+	fix := "write the offset into the times (2026-04-21T09:40:00+01:00) or give it (WithTimeOffset, on the command line --time-offset +01:00)"
 	if typed {
 		fix = "store them as timestamps with a time zone"
 	}
