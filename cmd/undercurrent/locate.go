@@ -968,6 +968,13 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			// A time column rounded to one value (an AC log is refused
 			// with the same words by the demodulation).
 			sv.warnings = append(sv.warnings, path+": "+w+"; the readings were fitted, but nothing that takes their times (a base station's correction, the drift, the order of the walks) can be trusted")
+		} else if step, w := ingest.CoarseStamps(s.Time); w != "" && !sv.ac {
+			// Times to the whole minute: a base correction pairs the
+			// readings with the base up to a step off.
+			if base != nil {
+				w += fmt.Sprintf("; the base correction (--base) paired each reading with the base at its written time, so the pairing may be up to %g s off", step)
+			}
+			sv.warnings = append(sv.warnings, path+": "+w)
 		}
 		if sv.ac {
 			// Stale stamps put at their place in the sampling
