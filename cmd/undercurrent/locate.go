@@ -976,6 +976,9 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			}
 			sv.warnings = append(sv.warnings, path+": "+w)
 		}
+		if w := ingest.ClockChangeForward(s.Time, s.X, s.Y, s.Group); w != "" {
+			sv.warnings = append(sv.warnings, path+": "+w)
+		}
 		if sv.ac {
 			// Stale stamps put at their place in the sampling
 			// (stuckstamps.go).
