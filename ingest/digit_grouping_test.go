@@ -60,12 +60,16 @@ func TestDigitGroupingRefused(t *testing.T) {
 		fmt.Fprintf(&fixed, "%d;%d;0;0;%.3f;%d;1\n", 1776760800+i, i, v, 100+i)
 		fmt.Fprintf(&short, "%d;%d;0;0;%v;%d;1\n", 1776760800+i, i, float64(i)*0.125, 100+i)
 	}
-	for name, text := range map[string]string{"fixed": fixed.String(), "short": short.String()} {
+	// Shortest form over a few rows, none with fewer decimals, a whole
+	// number among them (a simulated log's field near -152 nT): decimals,
+	// since -152 lies next to -151.273, not to -151273.
+	few := "time;x;y;z;bx;by;bz\n1776760800;0;0;0;-151.273;1;1\n1776760801;1;0;0;-152;1;1\n1776760802;2;0;0;-152.718;1;1\n"
+	for name, text := range map[string]string{"fixed": fixed.String(), "short": short.String(), "few": few} {
 		s, err := ReadSamples(writeFile(t, "log.csv", text))
 		if err != nil {
 			t.Fatalf("%s: %v", name, err)
 		}
-		if s.Len() != 40 {
+		if s.Len() != 40 && name != "few" {
 			t.Errorf("%s: %d readings, want 40", name, s.Len())
 		}
 	}

@@ -104,6 +104,23 @@ type groupingCol struct {
 	ints       int     // whole numbers without the mark
 	intExample []byte  // the first of them
 	intMax     float64 // largest |whole number|
+	// Where a whole number and a grouped value follow one another in the
+	// column, the two readings of the grouped one are weighed: grpVotes
+	// count the pairs closer with it read as grouped (958 then 1.028 as
+	// 1028), decVotes those closer with it read as a decimal (-152 then
+	// -151.273). prev is the last value, prevKind 1 whole, 2 grouped.
+	grpVotes, decVotes int
+	prev               float64
+	prevKind           int
+}
+
+// vote weighs a whole number w beside a value g written d{1,3}.ddd.
+func (c *groupingCol) vote(w, g float64) {
+	if math.Abs(w-1000*g) < math.Abs(w-g) {
+		c.grpVotes++
+	} else {
+		c.decVotes++
+	}
 }
 
 // checkDigitGrouping peeks at the data records (as firstRecordDecimalComma
@@ -112,7 +129,11 @@ type groupingCol struct {
 // before it and exactly three after ("18.861" beside "958" as a
 // spreadsheet's "#.##0" format writes 18861 and 958), and the same column
 // holds whole numbers below 1000 without the mark (zero, a receiver's "no
-// fix" or a logger's "no value", is no evidence). Read as decimals such a
+// fix" or a logger's "no value", is no evidence), and where a whole number
+// and such a value follow one another the value read as grouped is the
+// nearer to it (958 then 1.028, as 1028), never the value read as a
+// decimal (-152 then -151.273: a shortest-form decimal column of a few
+// rows, none of which happens to have fewer decimals). Read as decimals such a
 // column holds two scales at once (18.861 and 958). A column written with
 // three decimals throughout ("%.3f") has no whole numbers; one written in
 // shortest form has values with fewer decimals: neither is refused. The
@@ -171,6 +192,12 @@ func (r *csvReader) checkDigitGrouping(first int) error {
 					}
 					c.ints++
 					c.intMax = math.Max(c.intMax, math.Abs(v))
+					if c.prevKind == 2 {
+						c.vote(v, c.prev)
+					}
+					c.prev, c.prevKind = v, 1
+				} else {
+					c.prevKind = 0
 				}
 				continue
 			}
@@ -180,15 +207,24 @@ func (r *csvReader) checkDigitGrouping(first int) error {
 					c.first, c.firstLine = append([]byte(nil), f...), line
 				}
 				c.grouped++
+				v, _, _ := parseDecimalComma(f, nil)
+				if mark == '.' {
+					v, _ = parseNumber(f)
+				}
+				if c.prevKind == 1 {
+					c.vote(c.prev, v)
+				}
+				c.prev, c.prevKind = v, 2
 			} else {
 				c.other = true
+				c.prevKind = 0
 			}
 		}
 	}
 	var worst *groupingCol
 	src := -1
 	for s, c := range cols {
-		if c.grouped == 0 || c.other || c.ints == 0 || c.intMax > 999 {
+		if c.grouped == 0 || c.other || c.ints == 0 || c.intMax > 999 || c.grpVotes == 0 || c.decVotes > 0 {
 			continue
 		}
 		if worst == nil || c.firstLine < worst.firstLine || (c.firstLine == worst.firstLine && s < src) {
