@@ -49,6 +49,8 @@ type locateOptions struct {
 	baseUnits   []string
 	baseColumns []string
 	baseFrame   string // --base-frame: enu or ned ("" the file's own)
+	baseDates   string // --base-date-order: the base log's date order
+	baseOffset  string // --base-time-offset: the base log's UTC offset
 	freq        float64
 	window      float64
 	mainsText   string
@@ -135,6 +137,8 @@ func (o *locateOptions) setFlags(fs *pflag.FlagSet) {
 	fs.StringSliceVar(&o.baseColumns, "base-column", nil, "name the base log's columns, `CANON=NAME` as --column does for the survey logs (time=Time,bx=magX,by=magY,bz=magZ); not for an IAGA-2002 base")
 	fs.StringSliceVar(&o.baseUnits, "base-unit", nil, "units of the base log's columns, `CANON=UNIT` as --unit gives them for the survey logs (bx=uT,by=uT,bz=uT); a base log whose field is as steady as the Earth's but whose median lies outside the Earth's field band in nT is refused without it")
 	fs.StringVar(&o.baseFrame, "base-frame", "", "axes of the base log's field columns, `FRAME` enu or ned (default: the file's \"# undercurrent.frame:\" line or metadata, else enu); --frame applies to the survey logs only; not for an IAGA-2002 base, whose elements say")
+	fs.StringVar(&o.baseDates, "base-date-order", "", "order of day, month and year in the base log's text dates (02.02.2026 14:59:00): dmy, mdy or ymd, as --date-order for the survey logs (default: --date-order's, else such dates are refused)")
+	fs.StringVar(&o.baseOffset, "base-time-offset", "", "UTC offset of the base log's text times written without one, as +01:00, as --time-offset for the survey logs (default: they are read as UTC with a warning; --time-offset applies to the survey logs only, since a base log is often another instrument's, kept in UTC)")
 	fs.Float64Var(&o.freq, "freq", 0, "demodulate the AC field at `HZ` (50, 60, 16.7, 512...) and fit RMS currents with phase; the field's own frequency is then estimated from the log, and if it is off (a grid at 50.1 Hz) the log is demodulated at the estimate, with a warning saying so (too far off, it refuses and names the frequency found); without --freq the DC field is fitted (no frequency is estimated and AC is not looked for)")
 	fs.StringVar(&o.mainsText, "mains", "50,60", "with --freq at another frequency than the mains (an injected tracer, 16.7 Hz), fit the mains `HZ` (50, 60, both as 50,60, or none) and their odd harmonics alongside in every window, so that a strong mains field changing as the sensor walks does not leak into the signal as noise")
 	fs.Float64Var(&o.window, "window", 0, "AC demodulation window, `S` seconds (default: ten cycles at 50 or 60 Hz; at any other frequency ten cycles or 0.1 s, whichever is longer, rounded up to a multiple of 0.1 s, so that the window holds whole cycles of the 50 or 60 Hz mains and they do not leak in)")
@@ -866,6 +870,12 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 	if o.baseFrame != "" && o.base == "" {
 		return nil, usageErrorf("--base-frame needs --base")
 	}
+	if o.baseDates != "" && o.base == "" {
+		return nil, usageErrorf("--base-date-order needs --base")
+	}
+	if o.baseOffset != "" && o.base == "" {
+		return nil, usageErrorf("--base-time-offset needs --base")
+	}
 	if err := checkSurveyCopies(logs); err != nil {
 		return nil, err
 	}
@@ -991,6 +1001,16 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			// A time column rounded to one value (an AC log is refused
 			// with the same words by the demodulation).
 			sv.warnings = append(sv.warnings, path+": "+w+"; the readings were fitted, but nothing that takes their times (a base station's correction, the drift, the order of the walks) can be trusted")
+		} else if step, w := ingest.CoarseStamps(s.Time); w != "" && !sv.ac {
+			// Times to the whole minute: a base correction pairs the
+			// readings with the base up to a step off.
+			if base != nil {
+				w += fmt.Sprintf("; the base correction (--base) paired each reading with the base at its written time, so the pairing may be up to %g s off", step)
+			}
+			sv.warnings = append(sv.warnings, path+": "+w)
+		}
+		if w := ingest.ClockChangeForward(s.Time, s.X, s.Y, s.Group); w != "" {
+			sv.warnings = append(sv.warnings, path+": "+w)
 		}
 		if sv.ac {
 			// Stale stamps put at their place in the sampling
@@ -1487,6 +1507,20 @@ func baseUnitOptions(o *locateOptions, logs []string, bopts []ingest.Option) ([]
 		}
 		bopts = append(append([]ingest.Option(nil), bopts...), ingest.WithFrame(f))
 	}
+	if o.baseDates != "" {
+		d, err := ingest.ParseDateOrder(o.baseDates)
+		if err != nil {
+			return nil, usageErrorf("--base-date-order %q: want dmy (21/04/2026), mdy (4/21/2026) or ymd (2026/04/21)", o.baseDates)
+		}
+		bopts = append(append([]ingest.Option(nil), bopts...), ingest.WithDateOrder(d))
+	}
+	if o.baseOffset != "" {
+		off, err := ingest.ParseTimeOffset(o.baseOffset)
+		if err != nil {
+			return nil, usageErrorf("--base-time-offset %s", strings.TrimPrefix(err.Error(), "ingest: time offset "))
+		}
+		bopts = append(append([]ingest.Option(nil), bopts...), ingest.WithTimeOffset(off))
+	}
 	if len(o.baseUnits) == 0 {
 		return bopts, nil
 	}
@@ -1568,11 +1602,11 @@ func baseReadError(err error) error {
 		return err
 	}
 	msg := err.Error()
-	if !strings.Contains(msg, "--column ") && !strings.Contains(msg, "--unit ") {
+	if !baseFlagHint.MatchString(msg) {
 		return err
 	}
-	msg = strings.ReplaceAll(strings.ReplaceAll(strings.TrimPrefix(msg, "ingest: "), "--column ", "--base-column "), "--unit ", "--base-unit ")
-	return fmt.Errorf("%s (this is the base log, --base: --column and --unit apply to the survey logs only)", msg)
+	msg = baseWording(strings.TrimPrefix(msg, "ingest: "))
+	return fmt.Errorf("%s (this is the base log, --base: --column, --unit and --time-offset apply to the survey logs only, and --date-order applies to the base log only when --base-date-order is not given)", msg)
 }
 
 // baseWording words a warning of the base log's reader: the survey logs'
@@ -1580,11 +1614,12 @@ func baseReadError(err error) error {
 // do (a base log's times without a UTC offset were told to take
 // "--unit time=UTC", which left the warning as it was).
 func baseWording(w string) string {
-	return baseFlagHint.ReplaceAllString(w, "${1}--base-$2 ")
+	return baseFlagHint.ReplaceAllString(w, "${1}--base-$2$3")
 }
 
-// baseFlagHint matches the survey logs' --column and --unit in advice.
-var baseFlagHint = regexp.MustCompile(`(^|[^-a-z])--(column|unit) `)
+// baseFlagHint matches the survey logs' --column, --unit, --date-order
+// and --time-offset in advice.
+var baseFlagHint = regexp.MustCompile(`(^|[^-a-z])--(column|unit|date-order|time-offset)([ ,;)])`)
 
 // zoneShiftHint says when the base record, moved by a whole number of
 // half hours (up to 14 hours either way, the span of the world's time
@@ -1763,9 +1798,10 @@ func zoneWords(base, rover *ingest.Samples, m int, what string) string {
 	// local words the hint for one log read m minutes late (its local
 	// times of zone UTC+m read as UTC); t0 is its first time.
 	local := func(who string, m int, t0 float64) string {
-		give := ""
+		// The survey logs take --time-offset, the base log
+		// --base-time-offset.
+		give := fmt.Sprintf(", or give it with --base-time-offset %s", zone(m))
 		if who == roverName {
-			// The survey logs take --time-offset; the base log does not.
 			give = fmt.Sprintf(", or give it with --time-offset %s", zone(m))
 		}
 		return fmt.Sprintf("are %s times the local times of a zone UTC%s written without their offset (and so read as UTC)? If so, write the offset into them (such as %s%s)%s", who, zone(m), stamp(t0), zone(m), give)
