@@ -412,7 +412,7 @@ func setFeatureIDs(fs []feature) {
 		if c, ok := p["conductor"]; ok {
 			parts = append(parts, fmt.Sprintf("c%v", c))
 		}
-		if g, ok := p["group"].(string); ok {
+		if g, ok := p["group"].(string); ok && g != "" {
 			parts = append(parts, g)
 		}
 		if s, ok := p["source"]; ok {
