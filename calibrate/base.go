@@ -353,8 +353,8 @@ func BaseCorrectColumns(roverName string, rt []float64, rb [3][]float64, baseNam
 	blo := math.Max(series[0].t[0], math.Max(series[1].t[0], series[2].t[0]))
 	bhi := math.Min(series[0].t[len(series[0].t)-1], math.Min(series[1].t[len(series[1].t)-1], series[2].t[len(series[2].t)-1]))
 	if rhi < blo || rlo > bhi {
-		return nil, fmt.Errorf("calibrate: base correction: base record %s (%s to %s) does not overlap rover log %s (%s to %s)",
-			baseName, ft(blo), ft(bhi), roverName, ft(rlo), ft(rhi))
+		return nil, &BaseNoOverlapError{Msg: fmt.Sprintf("calibrate: base correction: base record %s (%s to %s) does not overlap rover log %s (%s to %s)",
+			baseName, ft(blo), ft(bhi), roverName, ft(rlo), ft(rhi))}
 	}
 	if maxHold >= 0 && (rlo < blo-maxHold || rhi > bhi+maxHold) {
 		far, first := 0, -1
@@ -642,3 +642,13 @@ func DespikeBaseColumns(bt []float64, bb [3][]float64, set *DespikeSettings) (*B
 	}
 	return &BaseSpikes{Rows: rows, Runs: strings.Join(runs, ", ")}, nil
 }
+
+// BaseNoOverlapError is BaseCorrect's error for a rover log that lies
+// wholly outside the base record: nothing of it can be corrected, and
+// nothing was changed. A caller merging several rover logs, of which the
+// base record covers only some, can leave this one uncorrected and say so.
+type BaseNoOverlapError struct {
+	Msg string
+}
+
+func (e *BaseNoOverlapError) Error() string { return e.Msg }

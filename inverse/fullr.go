@@ -63,12 +63,24 @@ func (sp *separable) fullR(x []float64) (r []float64, n int, perm []int, err err
 	sp.dPhiC(dblk, np)
 	mg := m - g
 	t := sp.scr.take(nr*mg*np + np) // the remaining rows, stacked per right-hand side
+	// The background's projection of every column first (projectCols takes several
+	// columns in one pass), then each column's reflections.
+	var barBuf [32][3]float64
+	bar := barBuf[:0]
+	if nb > 0 {
+		if cols <= len(barBuf) {
+			bar = barBuf[:cols]
+		} else {
+			bar = make([][3]float64, cols)
+		}
+		sp.projectCols(dblk, cols, bar)
+	}
 	for p := range np {
 		for k := range nr {
 			col := dblk[(p*nr+k)*m : (p*nr+k+1)*m]
 			base := k * q
 			if nb > 0 {
-				cb := sp.project(col)
+				cb := bar[p*nr+k]
 				for a := range nb {
 					r[(nr*q+p)*n+base+a] = cb[a] * math.Sqrt(sp.bn2[a])
 				}

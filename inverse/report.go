@@ -1038,10 +1038,19 @@ func (f *fitter) report(c *candidate, scores []ModelScore) (*Result, error) {
 	// under independence (serialFactor). DC only: an AC fit's readings are
 	// windows whose noise is measured from their own scatter.
 	var rho, widen float64
+	// An unweighted DC fit's residuals at c.x are the same numbers at every call (the
+	// separable's evaluation there is deterministic), so the ones taken here for the
+	// serial factor are kept for Result.Residuals and Predicted instead of being
+	// computed again below (a weighted fit recomputes them there, as before).
+	var kept []float64
 	if c.sp.nrhs == 1 {
 		res, err := c.sp.fullResiduals(c.x)
 		if err != nil {
 			return nil, err
+		}
+		if c.sp.w == nil {
+			kept = f.sv.scr.take(len(res))
+			copy(kept, res)
 		}
 		n, k := c.counts()
 		rho, widen = f.serialFactor(c, res, n-k)
@@ -1102,11 +1111,14 @@ func (f *fitter) report(c *candidate, scores []ModelScore) (*Result, error) {
 		}
 	}
 	// Residuals and predictions, unweighted.
-	saved := sp.w
-	res, err := sp.fullResiduals(c.x)
-	sp.w = saved
-	if err != nil {
-		return nil, err
+	res := kept
+	if res == nil {
+		saved := sp.w
+		res, err = sp.fullResiduals(c.x)
+		sp.w = saved
+		if err != nil {
+			return nil, err
+		}
 	}
 	n := len(f.sv.pts)
 	var ss float64

@@ -59,10 +59,16 @@ func (s *scratch) take(n int) []float64 {
 	if s == nil {
 		return make([]float64, n)
 	}
-	best := -1
+	// The smallest free buffer that fits, the first of them on a tie. One of exactly n
+	// is the first such (none smaller fits), so the search stops there: a fit asks
+	// for the same sizes again and again.
+	best, bc := -1, 0
 	for i, b := range s.free {
-		if cap(b) >= n && (best < 0 || cap(b) < cap(s.free[best])) {
-			best = i
+		if c := cap(b); c >= n && (best < 0 || c < bc) {
+			best, bc = i, c
+			if c == n {
+				break
+			}
 		}
 	}
 	var b []float64

@@ -235,12 +235,16 @@ func traverseStarts(pts [][3]float64) []int {
 	if len(pts) < 3 {
 		return starts
 	}
-	step := make([]float64, len(pts)-1)
+	// One allocation for the steps and the copy that the median reorders.
+	n := len(pts) - 1
+	buf := make([]float64, 2*n)
+	step, tmp := buf[:n:n], buf[n:]
 	for i := range step {
 		a, b := pts[i], pts[i+1]
 		step[i] = math.Sqrt((b[0]-a[0])*(b[0]-a[0]) + (b[1]-a[1])*(b[1]-a[1]) + (b[2]-a[2])*(b[2]-a[2]))
 	}
-	med := median(slices.Clone(step))
+	copy(tmp, step)
+	med := medianInPlace(tmp)
 	if !(med > 0) {
 		return starts
 	}

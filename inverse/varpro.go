@@ -505,6 +505,89 @@ func (sp *separable) project(v []float64) [3]float64 {
 	return [3]float64{s0, s1, s2}
 }
 
+// projectCols is project on each of the cols m-row columns of the column-major a
+// (column c at a[c*m:(c+1)*m]), storing column c's coefficients in bar[c] when bar is
+// not nil. Without weights it sums two columns in one pass over the rows: each sum
+// still takes its column's rows in order, as project does (the same numbers bit for
+// bit), but the two columns' six sums are independent chains of additions where one
+// column's three had to wait on each other's latency.
+func (sp *separable) projectCols(a []float64, cols int, bar [][3]float64) {
+	m := sp.m
+	c := 0
+	if sp.w == nil {
+		n3 := 3 * (m / 3)
+		for ; c+4 <= cols; c += 4 {
+			col := [4][]float64{a[c*m : (c+1)*m], a[(c+1)*m : (c+2)*m], a[(c+2)*m : (c+3)*m], a[(c+3)*m : (c+4)*m]}
+			s := sp.sums4(col[0], col[1], col[2], col[3])
+			for k := range 4 {
+				sub3(col[k][:n3], s[k][0], s[k][1], s[k][2])
+				if bar != nil {
+					bar[c+k] = s[k]
+				}
+			}
+		}
+		for ; c+2 <= cols; c += 2 {
+			u, v := a[c*m:(c+1)*m], a[(c+1)*m:(c+2)*m]
+			su, sv := sp.sums2(u, v)
+			sub3(u[:3*(m/3)], su[0], su[1], su[2])
+			sub3(v[:3*(m/3)], sv[0], sv[1], sv[2])
+			if bar != nil {
+				bar[c], bar[c+1] = su, sv
+			}
+		}
+	}
+	for ; c < cols; c++ {
+		cb := sp.project(a[c*m : (c+1)*m])
+		if bar != nil {
+			bar[c] = cb
+		}
+	}
+}
+
+// sums2 returns project's unweighted coefficients of the columns u and v (each sum
+// over the rows in order, then divided by bn2).
+func (sp *separable) sums2(u, v []float64) (su, sv [3]float64) {
+	n3 := 3 * (sp.m / 3)
+	u, v = u[:n3:n3], v[:n3:n3]
+	var u0, u1, u2, v0, v1, v2 float64
+	for i := 0; i+2 < len(u) && i+2 < len(v); i += 3 {
+		u0 += u[i]
+		u1 += u[i+1]
+		u2 += u[i+2]
+		v0 += v[i]
+		v1 += v[i+1]
+		v2 += v[i+2]
+	}
+	b := sp.bn2
+	return [3]float64{u0 / b[0], u1 / b[1], u2 / b[2]}, [3]float64{v0 / b[0], v1 / b[1], v2 / b[2]}
+}
+
+// sums4 is sums2 for four columns.
+func (sp *separable) sums4(u, v, w, x []float64) (s [4][3]float64) {
+	n3 := 3 * (sp.m / 3)
+	u, v, w, x = u[:n3:n3], v[:n3:n3], w[:n3:n3], x[:n3:n3]
+	var u0, u1, u2, v0, v1, v2, w0, w1, w2, x0, x1, x2 float64
+	for i := 0; i+2 < len(u) && i+2 < len(v) && i+2 < len(w) && i+2 < len(x); i += 3 {
+		u0 += u[i]
+		u1 += u[i+1]
+		u2 += u[i+2]
+		v0 += v[i]
+		v1 += v[i+1]
+		v2 += v[i+2]
+		w0 += w[i]
+		w1 += w[i+1]
+		w2 += w[i+2]
+		x0 += x[i]
+		x1 += x[i+1]
+		x2 += x[i+2]
+	}
+	b := sp.bn2
+	return [4][3]float64{
+		{u0 / b[0], u1 / b[1], u2 / b[2]}, {v0 / b[0], v1 / b[1], v2 / b[2]},
+		{w0 / b[0], w1 / b[1], w2 / b[2]}, {x0 / b[0], x1 / b[1], x2 / b[2]},
+	}
+}
+
 // evaluate factors the basis at x and solves for the strengths.
 //
 // With a uniform background Phi = [L, B], B holding the three weighted per-axis
@@ -571,9 +654,7 @@ func (sp *separable) evaluate(x []float64) error {
 			sp.bbar = make([][3]float64, g)
 		}
 		sp.bbar = sp.bbar[:g]
-		for j := range g {
-			sp.bbar[j] = sp.project(sp.a[j*m : (j+1)*m])
-		}
+		sp.projectCols(sp.a, g, sp.bbar)
 		if pd != nil && pd.ok {
 			ybar = pd.bar
 		} else {
@@ -954,9 +1035,7 @@ func (sp *separable) jacCols(x, _ []float64, jc []float64) error {
 	sp.dblk = sp.scr.grow(sp.dblk, m*cols)
 	sp.dPhiC(sp.dblk, np)
 	if sp.uniform() {
-		for c := range cols {
-			sp.project(sp.dblk[c*m : (c+1)*m])
-		}
+		sp.projectCols(sp.dblk, cols, nil)
 	}
 	houseApplyQT(sp.a, m, g, sp.tau, sp.dblk, cols)
 	mg := m - g
@@ -986,9 +1065,7 @@ func (sp *separable) jacView(x, _ []float64) (v []float64, stride int, neg bool,
 	sp.dblk = sp.scr.grow(sp.dblk, m*np)
 	sp.dPhiC(sp.dblk, np)
 	if sp.uniform() {
-		for c := range np {
-			sp.project(sp.dblk[c*m : (c+1)*m])
-		}
+		sp.projectCols(sp.dblk, np, nil)
 	}
 	houseApplyQT(sp.a, m, g, sp.tau, sp.dblk, np)
 	return sp.dblk[g : np*m], m, true, nil

@@ -61,6 +61,9 @@ type Fit struct {
 	// of a station disagree (route.Station.Walk).
 	Walk  string
 	Start time.Time
+	// Log is the path, as given, of the survey log the group's readings
+	// come from (Group.Log); empty when not known.
+	Log string
 	// Traverse names the traverse the group walks where the caller knows
 	// it (the group value its walks share), for the route to pair a
 	// station's walks (route.Station.Traverse); empty when not known.
@@ -893,7 +896,7 @@ func circuitPartner(f *Fit, ac, pairRoute bool) int {
 // pairRoute, the go-and-return pair it belongs to, see circuitOf).
 func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute bool, sensorHeight float64) (Group, route.Station) {
 	pts := f.Problem.Points
-	g := Group{Key: f.Key, Points: len(pts), Centroid: centroid(pts), Sources: []Source{}}
+	g := Group{Key: f.Key, Log: f.Log, Points: len(pts), Centroid: centroid(pts), Sources: []Source{}}
 	st := route.Station{Key: f.Key, Point: g.Centroid, AC: ac, Dipole: f.Dipole, Walk: f.Walk, Start: f.Start, Traverse: f.Traverse}
 	if f.Result == nil {
 		g.Problem = "the fit failed: " + f.Err.Error()

@@ -265,6 +265,11 @@ type Signal struct {
 	// window and not reported (the mains and their odd harmonics beside
 	// an injected tracer); empty when none were.
 	NuisanceHz []float64 `json:"nuisance_hz,omitempty"`
+	// PhasesWithinGroups is set when some group was fitted with a phase
+	// ramp (the field's frequency off the one demodulated at): the phases
+	// then compare between the conductors of a group, not along the route
+	// (PhaseWords).
+	PhasesWithinGroups bool `json:"phases_within_groups,omitempty"`
 }
 
 // MinCover is a minimum depth of cover and where it comes from.
@@ -280,6 +285,12 @@ type Group struct {
 	// Key is the group's value of the grouping column; empty when the
 	// run was not grouped.
 	Key string `json:"key"`
+	// Log is the survey log the group's readings come from (of its first
+	// reading, where a traverse runs on into the next file), its path as
+	// given; empty when not known. Which log (crew, day) a group came
+	// from could not be read from the outputs where its name stood bare
+	// beside another log's (found in review).
+	Log string `json:"log,omitempty"`
 	// Points is the number of readings fitted.
 	Points int `json:"points"`
 	// Chainage is the group's distance along the route, m; nil without

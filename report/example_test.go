@@ -31,8 +31,8 @@ func ExampleWriteCSV() {
 		fmt.Println(err)
 	}
 	// Output:
-	// chainage_m,route_chainage_m,group,source,conductor,kind,signal,current_a,current_sigma_a,phase_deg,phase_sigma_deg,depth_m,depth_sigma_m,depth_reference,cover_m,cover_sigma_m,moment_a_m2,moment_sigma_a_m2,east_m,north_m,up_m,lon_deg,lat_deg,azimuth_deg,azimuth_sigma_deg,dip_deg,dip_sigma_deg,offset_m,offset_sigma_m,points,rms_nt,reference_chi2,dof,ok,problem,used,left_out,pair_current_times_spacing_am,pair_current_times_spacing_sigma_am,pair_net_current_a,pair_net_current_sigma_a,pair_net_current_phase_deg,pair_net_current_phase_sigma_deg,sum_current_a,sum_current_sigma_a,sum_phase_deg,sum_phase_sigma_deg,uncertainty_note,current_first_walk_a,current_first_walk_sigma_a,fit,station_scatter_current_a,station_scatter_depth_m
-	// ,,,1,1,line,dc,12.3100,0.04,,,1.12000,0.006,mean-sensor-height,0.82000,0.006,,,2.410,0.000,-1.120,,,0.400,0.3,0.00,,0.000,,41,4.8,,,true,,,,,,,,,,,,,,,,,sound,,
+	// chainage_m,route_chainage_m,group,source,conductor,kind,signal,current_a,current_sigma_a,phase_deg,phase_sigma_deg,depth_m,depth_sigma_m,depth_reference,cover_m,cover_sigma_m,moment_a_m2,moment_sigma_a_m2,east_m,north_m,up_m,lon_deg,lat_deg,azimuth_deg,azimuth_sigma_deg,dip_deg,dip_sigma_deg,offset_m,offset_sigma_m,points,rms_nt,reference_chi2,dof,ok,problem,used,left_out,pair_current_times_spacing_am,pair_current_times_spacing_sigma_am,pair_net_current_a,pair_net_current_sigma_a,pair_net_current_phase_deg,pair_net_current_phase_sigma_deg,sum_current_a,sum_current_sigma_a,sum_phase_deg,sum_phase_sigma_deg,uncertainty_note,current_first_walk_a,current_first_walk_sigma_a,fit,station_scatter_current_a,station_scatter_depth_m,log
+	// ,,,1,1,line,dc,12.3100,0.04,,,1.12000,0.006,mean-sensor-height,0.82000,0.006,,,2.410,0.000,-1.120,,,0.400,0.3,0.00,,0.000,,41,4.8,,,true,,,,,,,,,,,,,,,,,sound,,,
 }
 
 func ExampleWriteGeoJSON() {

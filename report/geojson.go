@@ -192,6 +192,9 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 				"fit":     fitStatus(&g),
 			}
 			putSigma(props, "depth_sigma_m", depthSigma)
+			if g.Log != "" {
+				props["log"] = g.Log
+			}
 			props["depth_reference"] = d.DepthReference.Kind
 			props["depth_note"] = depthNote
 			if r := d.conductorRoute(sourceConductor(d, &g, i, &s)); r != nil {
@@ -944,6 +947,9 @@ func (d *Document) failedFitFeature(g *Group) feature {
 		"fit":     FitFailed,
 		"note": "The fit at this group failed: it found no conductor its readings determine, and its numbers mean nothing here. " +
 			"This Point is the centre of the group's readings, not a conductor: do not use it as a conductor's position, depth or current.",
+	}
+	if g.Log != "" {
+		props["log"] = g.Log
 	}
 	if g.Problem != "" {
 		props["problem"] = g.Problem

@@ -84,7 +84,7 @@ func (c *coilFlags) check(o *locateOptions) error {
 		return usageErrorf("give --coil (the ideal law) or --coil-response (a measured response), not both")
 	case o.freq == 0:
 		return usageErrorf("%s: an induction coil senses only a changing field, so a coil log has no DC field to fit: give the AC frequency with --freq", flag)
-	case o.calibration != "":
+	case o.calibration != "" || len(o.calPerLog) > 0:
 		return usageErrorf("%s and --calibration: a calibration from \"undercurrent calibrate\" corrects a magnetometer's offsets and scales against the Earth's field, which a coil does not sense; the coil's own response is --coil or --coil-response", flag)
 	case o.base != "":
 		return usageErrorf("%s and --base: the base-station correction removes the slow daily change of the Earth's field, which a coil does not sense (and an AC field is immune to it); leave out --base", flag)

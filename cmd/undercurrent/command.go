@@ -329,8 +329,21 @@ var outputFlags = map[string]bool{"output": true, "base-log": true, "truth": tru
 func inputPaths(name string, flags *pflag.FlagSet, args []string) map[string]bool {
 	in := map[string]bool{}
 	flags.Visit(func(f *pflag.Flag) {
-		if !outputFlags[f.Name] {
+		if outputFlags[f.Name] {
+			return
+		}
+		sl, ok := f.Value.(pflag.SliceValue)
+		if !ok {
 			in[f.Value.String()] = true
+			return
+		}
+		// Each value of a flag given again (--base, --calibration), and
+		// the file of a LOG=FILE (--calibration, perlog.go).
+		for _, v := range sl.GetSlice() {
+			in[v] = true
+			if _, file, ok := strings.Cut(v, "="); ok && f.Name == "calibration" {
+				in[file] = true
+			}
 		}
 	})
 	for i, a := range args {

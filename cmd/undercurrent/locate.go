@@ -35,7 +35,13 @@ type locateOptions struct {
 	// curRef is --current-reference and its flags (currentref.go).
 	curRef currentRefFlags
 
-	calibration string
+	// calibration is the bare --calibration, applied to every log not
+	// named in calPerLog (--calibration LOG=CAL.json, perlog.go);
+	// calibrations are the values as given.
+	calibration  string
+	calibrations []string
+	calPerLog    []perLogValue
+
 	base        string   // the base log, or the base logs joined by " + " for messages
 	bases       []string // the base logs given (--base, once or more)
 	baseHold    float64
@@ -43,6 +49,8 @@ type locateOptions struct {
 	baseUnits   []string
 	baseColumns []string
 	baseFrame   string // --base-frame: enu or ned ("" the file's own)
+	baseDates   string // --base-date-order: the base log's date order
+	baseOffset  string // --base-time-offset: the base log's UTC offset
 	freq        float64
 	window      float64
 	mainsText   string
@@ -120,7 +128,7 @@ type locateOptions struct {
 var resultFiles = []string{report.FileJSON, report.FileCSV, report.FileFindings, report.FileGeoJSON, report.FileHTML}
 
 func (o *locateOptions) setFlags(fs *pflag.FlagSet) {
-	fs.StringVar(&o.calibration, "calibration", "", "apply the sensor calibration in `CAL.json` (from undercurrent calibrate)")
+	fs.StringArrayVar(&o.calibrations, "calibration", nil, "apply the sensor calibration in `CAL.json` (from undercurrent calibrate); for logs of different sensors give each its own as LOG=CAL.json, again for each (LOG the log as given or its base name), and a bare CAL.json for the logs not named")
 	fs.Float64Var(&o.mountYaw, "mount-yaw", 0, "the magnetometer is turned on its mount: its field as read is turned `DEG` degrees anticlockwise seen from above (the turn the check against the base record reports, with its sign); the readings are turned back by it about the sensor's vertical axis, after the calibration and before the attitude")
 	fs.StringVar(&o.fieldAxes, "field-axes", "", "what the field columns bx, by, bz hold, `A,B,C` each one of e, n, u (east, north, up) or w, s, d (west, south, down): n,e,d for a field logged north, east, down with positions east, north, up; e,s,d for a sensor mounted upside down; n,e,u for bx and by swapped; the field alone is read so (--frame turns the positions too), after the calibration and before --mount-yaw; for an enu log only")
 	o.curRef.setFlags(fs)
@@ -129,6 +137,8 @@ func (o *locateOptions) setFlags(fs *pflag.FlagSet) {
 	fs.StringSliceVar(&o.baseColumns, "base-column", nil, "name the base log's columns, `CANON=NAME` as --column does for the survey logs (time=Time,bx=magX,by=magY,bz=magZ); not for an IAGA-2002 base")
 	fs.StringSliceVar(&o.baseUnits, "base-unit", nil, "units of the base log's columns, `CANON=UNIT` as --unit gives them for the survey logs (bx=uT,by=uT,bz=uT); a base log whose field is as steady as the Earth's but whose median lies outside the Earth's field band in nT is refused without it")
 	fs.StringVar(&o.baseFrame, "base-frame", "", "axes of the base log's field columns, `FRAME` enu or ned (default: the file's \"# undercurrent.frame:\" line or metadata, else enu); --frame applies to the survey logs only; not for an IAGA-2002 base, whose elements say")
+	fs.StringVar(&o.baseDates, "base-date-order", "", "order of day, month and year in the base log's text dates (02.02.2026 14:59:00): dmy, mdy or ymd, as --date-order for the survey logs (default: --date-order's, else such dates are refused)")
+	fs.StringVar(&o.baseOffset, "base-time-offset", "", "UTC offset of the base log's text times written without one, as +01:00, as --time-offset for the survey logs (default: they are read as UTC with a warning; --time-offset applies to the survey logs only, since a base log is often another instrument's, kept in UTC)")
 	fs.Float64Var(&o.freq, "freq", 0, "demodulate the AC field at `HZ` (50, 60, 16.7, 512...) and fit RMS currents with phase; the field's own frequency is then estimated from the log, and if it is off (a grid at 50.1 Hz) the log is demodulated at the estimate, with a warning saying so (too far off, it refuses and names the frequency found); without --freq the DC field is fitted (no frequency is estimated and AC is not looked for)")
 	fs.StringVar(&o.mainsText, "mains", "50,60", "with --freq at another frequency than the mains (an injected tracer, 16.7 Hz), fit the mains `HZ` (50, 60, both as 50,60, or none) and their odd harmonics alongside in every window, so that a strong mains field changing as the sensor walks does not leak into the signal as noise")
 	fs.Float64Var(&o.window, "window", 0, "AC demodulation window, `S` seconds (default: ten cycles at 50 or 60 Hz; at any other frequency ten cycles or 0.1 s, whichever is longer, rounded up to a multiple of 0.1 s, so that the window holds whole cycles of the 50 or 60 Hz mains and they do not leak in)")
@@ -180,6 +190,13 @@ func (o *locateOptions) check(fs *pflag.FlagSet) error {
 	if fs != nil && fs.Lookup("base") != nil {
 		// The flag set binds o.bases anew for each run; o.base follows.
 		o.base = strings.Join(o.bases, " + ")
+	}
+	if fs != nil && fs.Lookup("calibration") != nil {
+		// The flag set binds o.calibrations anew for each run.
+		var err error
+		if o.calibration, o.calPerLog, err = splitPerLog("calibration", o.calibrations, calibrationIsBare); err != nil {
+			return err
+		}
 	}
 	o.baseHoldSet = fs != nil && fs.Changed("base-hold")
 	if o.baseHold < 0 || math.IsNaN(o.baseHold) {
@@ -346,7 +363,12 @@ groups that show it and sized from the levels either side), cover shallower
 than --min-cover, fits that are poor or ambiguous, and magnetised objects
 (a buried steel item beside the conductor, found by refitting anomalous
 groups with a point dipole). Groups with the same value in several logs are
-fitted together.
+fitted together. Logs of different sensors each take their own
+calibration (--calibration LOG=CAL.json, again for each log; a bare
+CAL.json for the logs not named); a --base record that overlaps only some
+of the logs corrects those and warns of the others; logs whose columns,
+units or time zones differ are each run through "undercurrent convert"
+with their own input flags first.
 
 With --freq, each window averages the field along the sensor's path, and
 the fit models that average (a straight walk within each window); when the
@@ -799,6 +821,10 @@ type survey struct {
 	// say which logs' on-state readings alone were fitted.
 	interrupted map[string]bool
 	intNotes    []string
+	// leaky holds, for the AC logs in which a fitted mains line too strong
+	// for its distance leaks into the signal, why their groups are not
+	// sound (demodPlan.strongLine).
+	leaky map[string]string
 	// baseGaps are the gaps of the base record that survey readings fell
 	// in (basegaps.go).
 	baseGaps []baseGapUse
@@ -906,17 +932,30 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 	if o.baseFrame != "" && o.base == "" {
 		return nil, usageErrorf("--base-frame needs --base")
 	}
+	if o.baseDates != "" && o.base == "" {
+		return nil, usageErrorf("--base-date-order needs --base")
+	}
+	if o.baseOffset != "" && o.base == "" {
+		return nil, usageErrorf("--base-time-offset needs --base")
+	}
 	if err := checkSurveyCopies(logs); err != nil {
 		return nil, err
 	}
+	// Each log's calibration (perlog.go): its own, or the bare one.
+	// cal is the first one applied, for the checks made once for the
+	// survey (the offset turning with the sensor, the field against the
+	// base record's).
+	cals, calPaths, err := loadCalibrations(o, logs, doc)
+	if err != nil {
+		return nil, err
+	}
 	var cal *calibrate.Calibration
-	if o.calibration != "" {
-		var err error
-		if cal, err = calibrate.Load(o.calibration); err != nil {
-			return nil, err
+	var calPath string
+	for k := range logs {
+		if cals[k] != nil {
+			cal, calPath = cals[k], calPaths[k]
+			break
 		}
-		doc.Calibration = &report.Correction{File: o.calibration, Summary: cal.Summary()}
-		doc.Inputs = append(doc.Inputs, fileInput("calibration", o.calibration, 0))
 	}
 	if err := o.coil.load(doc, o.freq); err != nil {
 		return nil, err
@@ -937,7 +976,7 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		}
 	}
 	if err := checkSurveyPositions(logs, opts); err != nil {
-		return nil, err
+		return nil, withPerLogNote(err, logs)
 	}
 	var base *ingest.Samples
 	var baseLeftOut []int // base rows left out as spikes
@@ -985,6 +1024,10 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 	// are not geographic (the reader's is left out: baseOptions).
 	baseFrameNote, baseFrameSaid := "", false
 	baseFieldSaid := false // baseInConductorField's warning given
+	// The logs the base record lies wholly outside of, left uncorrected,
+	// and the errors that said so (baseUncovered).
+	var baseApart []string
+	var baseApartErr []error
 	if base != nil {
 		baseFrameNote = calibrate.BaseFrameWarning(base)
 	}
@@ -997,7 +1040,7 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		s, rows, warns, err := o.read.readLogRows(ctx, path, opts, !o.coil.on())
 		sv.warnings = append(sv.warnings, warns...)
 		if err != nil {
-			return nil, err
+			return nil, withPerLogNote(err, logs)
 		}
 		// A DC log in uT read as nT (unitslip.go).
 		if !o.coil.on() && !sv.ac && !o.read.fieldUnitGiven() {
@@ -1020,6 +1063,16 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			// A time column rounded to one value (an AC log is refused
 			// with the same words by the demodulation).
 			sv.warnings = append(sv.warnings, path+": "+w+"; the readings were fitted, but nothing that takes their times (a base station's correction, the drift, the order of the walks) can be trusted")
+		} else if step, w := ingest.CoarseStamps(s.Time); w != "" && !sv.ac {
+			// Times to the whole minute: a base correction pairs the
+			// readings with the base up to a step off.
+			if base != nil {
+				w += fmt.Sprintf("; the base correction (--base) paired each reading with the base at its written time, so the pairing may be up to %g s off", step)
+			}
+			sv.warnings = append(sv.warnings, path+": "+w)
+		}
+		if w := ingest.ClockChangeForward(s.Time, s.X, s.Y, s.Group); w != "" {
+			sv.warnings = append(sv.warnings, path+": "+w)
 		}
 		if sv.ac {
 			// Stale stamps put at their place in the sampling
@@ -1164,7 +1217,7 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		if doc.Site == "" {
 			doc.Site = s.Meta["site"]
 		}
-		if cal != nil {
+		if cal := cals[k]; cal != nil {
 			// The calibration belongs to the sensor's own axes, the
 			// columns as the file has them. ingest has turned a log read
 			// with --frame ned to east, north, up (x and y swapped, z
@@ -1181,7 +1234,12 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			}
 			// A calibration of another sensor, or a log whose corrected
 			// field disagrees with the calibration's reference.
-			sv.warnings = append(sv.warnings, c.Check(s)...)
+			for _, w := range c.Check(s) {
+				if len(logs) > 1 && strings.Contains(w, "another sensor") {
+					w += fmt.Sprintf(" With logs of several sensors, give each its own: --calibration %s=CAL.json (%s's calibration is %s)", filepath.Base(path), path, calPaths[k])
+				}
+				sv.warnings = append(sv.warnings, w)
+			}
 			if err := c.Apply(s); err != nil {
 				return nil, fmt.Errorf("%s: %w", path, err)
 			}
@@ -1247,6 +1305,7 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 				sv.warnings = append(sv.warnings, fmt.Sprintf("%s: removed %d spikes of %d readings", path, rep.Removed, rep.Removed+rep.Kept))
 			}
 		}
+		var rep *calibrate.BaseReport
 		if base != nil {
 			hold := 0.0 // the default: five base sample intervals, 60 to 300 s
 			if o.baseHoldSet {
@@ -1256,16 +1315,36 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			// above or below the default (the same as the hold's); 0
 			// allows no reading missing. Readings left out as spikes are
 			// no gap.
-			rep, err := calibrate.BaseCorrect(s, base, &calibrate.BaseSettings{MaxHold: hold, MaxGap: hold, LeftOut: baseLeftOut})
+			var err error
+			rep, err = calibrate.BaseCorrect(s, base, &calibrate.BaseSettings{MaxHold: hold, MaxGap: hold, LeftOut: baseLeftOut})
+			var apart *calibrate.BaseNoOverlapError
 			if err != nil {
 				if h := zoneShiftHint(base, s); h != "" && strings.Contains(err.Error(), "does not") {
 					err = fmt.Errorf("%w; %s", err, h)
+				}
+			}
+			if errors.As(err, &apart) && len(logs) > 1 {
+				// A base record of one day beside logs of several: the
+				// logs it covers are corrected, the others left as read
+				// and named (baseUncovered), and the run is refused only
+				// when it covers none (found in review: a two-day merge
+				// with one day's base was refused whole).
+				baseApart = append(baseApart, path)
+				baseApartErr = append(baseApartErr, err)
+				err = nil
+				rep = nil
+			}
+			if err != nil {
+				if errors.As(err, &apart) {
+					err = fmt.Errorf("%w; %s", err, baseApartHint)
 				}
 				if len(baseLeftOut) > 0 {
 					err = fmt.Errorf("%w (%s of the base log were left out as spikes, see the warning below; they are readings, not gaps)", err, plural(len(baseLeftOut), "reading"))
 				}
 				return nil, err
 			}
+		}
+		if base != nil && rep != nil {
 			baseNotes = append(baseNotes, baseSummary(path, rep))
 			if w := baseInConductorField(o.base, path, rep); w != "" && !baseFieldSaid {
 				baseFieldSaid = true
@@ -1336,6 +1415,14 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			return nil, err
 		}
 	}
+	if len(baseApart) > 0 {
+		w, err := baseUncovered(o.base, logs, baseApart, baseApartErr)
+		if err != nil {
+			return nil, err
+		}
+		sv.alerts = append(sv.alerts, w)
+		baseNotes = append(baseNotes, "not corrected (outside the base record): "+strings.Join(baseApart, ", "))
+	}
 	if base != nil {
 		doc.BaseStation = &report.Correction{File: o.base, Summary: strings.Join(baseNotes, "; ")}
 	}
@@ -1349,7 +1436,7 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 	// The survey's field against the base record's is compared once the
 	// groups are fitted (baseCheck.warnings): a DC survey's level is the
 	// fits' own backgrounds, which hold no conductor's field.
-	sv.baseCheck = &baseCheck{cal: cal, calPath: o.calibration, enu: enu}
+	sv.baseCheck = &baseCheck{cal: cal, calPath: calPath, enu: enu}
 	if !o.coil.on() {
 		sv.baseCheck.base, sv.baseCheck.raw = base, &field
 		if org := doc.Frame.Origin; org != nil {
@@ -1482,6 +1569,20 @@ func baseUnitOptions(o *locateOptions, logs []string, bopts []ingest.Option) ([]
 		}
 		bopts = append(append([]ingest.Option(nil), bopts...), ingest.WithFrame(f))
 	}
+	if o.baseDates != "" {
+		d, err := ingest.ParseDateOrder(o.baseDates)
+		if err != nil {
+			return nil, usageErrorf("--base-date-order %q: want dmy (21/04/2026), mdy (4/21/2026) or ymd (2026/04/21)", o.baseDates)
+		}
+		bopts = append(append([]ingest.Option(nil), bopts...), ingest.WithDateOrder(d))
+	}
+	if o.baseOffset != "" {
+		off, err := ingest.ParseTimeOffset(o.baseOffset)
+		if err != nil {
+			return nil, usageErrorf("--base-time-offset %s", strings.TrimPrefix(err.Error(), "ingest: time offset "))
+		}
+		bopts = append(append([]ingest.Option(nil), bopts...), ingest.WithTimeOffset(off))
+	}
 	if len(o.baseUnits) == 0 {
 		return bopts, nil
 	}
@@ -1563,11 +1664,11 @@ func baseReadError(err error) error {
 		return err
 	}
 	msg := err.Error()
-	if !strings.Contains(msg, "--column ") && !strings.Contains(msg, "--unit ") {
+	if !baseFlagHint.MatchString(msg) {
 		return err
 	}
-	msg = strings.ReplaceAll(strings.ReplaceAll(strings.TrimPrefix(msg, "ingest: "), "--column ", "--base-column "), "--unit ", "--base-unit ")
-	return fmt.Errorf("%s (this is the base log, --base: --column and --unit apply to the survey logs only)", msg)
+	msg = baseWording(strings.TrimPrefix(msg, "ingest: "))
+	return fmt.Errorf("%s (this is the base log, --base: --column, --unit and --time-offset apply to the survey logs only, and --date-order applies to the base log only when --base-date-order is not given)", msg)
 }
 
 // baseWording words a warning of the base log's reader: the survey logs'
@@ -1575,11 +1676,12 @@ func baseReadError(err error) error {
 // do (a base log's times without a UTC offset were told to take
 // "--unit time=UTC", which left the warning as it was).
 func baseWording(w string) string {
-	return baseFlagHint.ReplaceAllString(w, "${1}--base-$2 ")
+	return baseFlagHint.ReplaceAllString(w, "${1}--base-$2$3")
 }
 
-// baseFlagHint matches the survey logs' --column and --unit in advice.
-var baseFlagHint = regexp.MustCompile(`(^|[^-a-z])--(column|unit) `)
+// baseFlagHint matches the survey logs' --column, --unit, --date-order
+// and --time-offset in advice.
+var baseFlagHint = regexp.MustCompile(`(^|[^-a-z])--(column|unit|date-order|time-offset)([ ,;)])`)
 
 // zoneShiftHint says when the base record, moved by a whole number of
 // half hours (up to 14 hours either way, the span of the world's time
@@ -1758,9 +1860,10 @@ func zoneWords(base, rover *ingest.Samples, m int, what string) string {
 	// local words the hint for one log read m minutes late (its local
 	// times of zone UTC+m read as UTC); t0 is its first time.
 	local := func(who string, m int, t0 float64) string {
-		give := ""
+		// The survey logs take --time-offset, the base log
+		// --base-time-offset.
+		give := fmt.Sprintf(", or give it with --base-time-offset %s", zone(m))
 		if who == roverName {
-			// The survey logs take --time-offset; the base log does not.
 			give = fmt.Sprintf(", or give it with --time-offset %s", zone(m))
 		}
 		return fmt.Sprintf("are %s times the local times of a zone UTC%s written without their offset (and so read as UTC)? If so, write the offset into them (such as %s%s)%s", who, zone(m), stamp(t0), zone(m), give)
@@ -2121,7 +2224,16 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 	}
 	res, _, warns, hints, err := demodulateACLeftOut(o, s, sv.clipGaps[s.Source]) // acchecks.go
 	if err != nil {
-		return noWindowAdvice(err, o)
+		return noWindowAdvice(err, o, s)
+	}
+	if w, why := (demodPlan{mains: o.mains, fs: logRate(s)}).strongLine(s, res); w != "" {
+		sv.warnings = append(sv.warnings, s.Source+": "+w)
+		if why != "" {
+			if sv.leaky == nil {
+				sv.leaky = map[string]string{}
+			}
+			sv.leaky[s.Source] = why
+		}
 	}
 	if hints.unchecked {
 		sv.unchecked = append(sv.unchecked, uncheckedLog{source: s.Source, lines: hints.lines, atFreq: hints.atFreq})
@@ -2186,8 +2298,9 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 // noWindowAdvice adds to a refusal for want of one whole demodulation
 // window (calibrate.NoWindowError) what the user can do: repair the time
 // column when breaks in it cut the log short, or give a window that fits
-// in the longest run.
-func noWindowAdvice(err error, o *locateOptions) error {
+// in the longest run, saying when a window that short cannot fit a mains
+// line beside the signal apart (no window then fits both).
+func noWindowAdvice(err error, o *locateOptions, s *ingest.Samples) error {
 	var nw *calibrate.NoWindowError
 	if !errors.As(err, &nw) {
 		return err
@@ -2205,7 +2318,7 @@ func noWindowAdvice(err error, o *locateOptions) error {
 		do = append(do, "log without pauses")
 	}
 	if cycles := math.Floor(nw.LongestS*o.freq + 1e-9); o.freq > 0 && cycles >= 3 {
-		do = append(do, fmt.Sprintf("give a window that fits in the longest run, --window %.4g or shorter (%.0f cycles of %g Hz)", cycles/o.freq, cycles, o.freq))
+		do = append(do, fmt.Sprintf("give a window that fits in the longest run, --window %.4g or shorter (%.0f cycles of %g Hz)", cycles/o.freq, cycles, o.freq)+shortClash(o, s, cycles/o.freq))
 	}
 	if len(do) == 0 {
 		return err
@@ -2428,6 +2541,15 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 			}
 		}
 		head.Warnings = append(kept, w)
+		// Phases then compare within groups only (the summary's header).
+		head.Signal.PhasesWithinGroups = true
+	}
+	for _, g := range sv.groups {
+		// Demodulated at an estimate, whose own uncertainty turns the
+		// phase from group to group (its warning says so).
+		if g.estimated {
+			head.Signal.PhasesWithinGroups = true
+		}
 	}
 	for _, l := range sv.looseLogs {
 		var gs []*group
@@ -2451,6 +2573,7 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 		}
 		fits[i].MeasuredNoise = g.measuredNoise(sv.ac)
 		fits[i].Traverse = traverseOf(g.key, g.from, sv.rewalks, sv.reused)
+		fits[i].Log = g.from
 		if len(sv.logs) > 1 {
 			fits[i].Walk = logLabel(g.from, sv.logs)
 			if n := sv.rewalks[rewalkKey(g.from, g.key)]; n > 1 {
@@ -2506,6 +2629,8 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 	baseGapsDocument(doc, sv)
 	// Groups of a log with an interrupted current fitted as it is.
 	interruptedDocument(doc, sv)
+	// Groups of a log beside a strong mains line that leaks (acchecks.go).
+	leakyDocument(doc, sv)
 	// Build puts a misfit every group shares first; an alert that names a
 	// cause (spikes left in, a route fitted as one line) still leads.
 	doc.Warnings = alertsFirst(doc.Warnings, alerts)
@@ -2939,13 +3064,13 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration, walked 
 	depthCol := doc.DepthReference.Kind != report.DepthBelowGround
 	switch {
 	case !coverKnown:
-		fmt.Fprintf(w, "depths are %s; currents %s, one-sigma uncertainties\n", ref, map[bool]string{true: "RMS with phase angle (∠, " + report.PhaseAngleWords + ")", false: "DC"}[doc.Signal.Mode == report.SignalAC])
+		fmt.Fprintf(w, "depths are %s; currents %s, one-sigma uncertainties\n", ref, map[bool]string{true: "RMS with phase angle (∠, " + report.PhaseWords(doc.Signal) + ")", false: "DC"}[doc.Signal.Mode == report.SignalAC])
 		fmt.Fprintln(w, report.NoCoverSentence)
 	case depthCol:
 		fmt.Fprintf(w, "cover is the depth below the ground: the depth %s less the sensors' %.2f m height above the ground; currents %s, one-sigma uncertainties\n",
-			ref, doc.DepthReference.SensorHeight, map[bool]string{true: "RMS with phase angle (∠, " + report.PhaseAngleWords + ")", false: "DC"}[doc.Signal.Mode == report.SignalAC])
+			ref, doc.DepthReference.SensorHeight, map[bool]string{true: "RMS with phase angle (∠, " + report.PhaseWords(doc.Signal) + ")", false: "DC"}[doc.Signal.Mode == report.SignalAC])
 	default:
-		fmt.Fprintf(w, "cover is the depth %s; currents %s, one-sigma uncertainties\n", ref, map[bool]string{true: "RMS with phase angle (∠, " + report.PhaseAngleWords + ")", false: "DC"}[doc.Signal.Mode == report.SignalAC])
+		fmt.Fprintf(w, "cover is the depth %s; currents %s, one-sigma uncertainties\n", ref, map[bool]string{true: "RMS with phase angle (∠, " + report.PhaseWords(doc.Signal) + ")", false: "DC"}[doc.Signal.Mode == report.SignalAC])
 	}
 	if robustGroups(doc) > 0 {
 		// The sigmas of Huber-weighted fits are large-sample ones (the

@@ -1,0 +1,212 @@
+package main
+
+import (
+	"errors"
+	"fmt"
+	"os"
+	"path/filepath"
+	"strings"
+
+	"undercurrent/calibrate"
+	"undercurrent/report"
+)
+
+// Settings given per log: a survey merged from logs of different sensors,
+// crews or days needs each log's own calibration (--calibration
+// LOG=CAL.json). Before, the flag was one value for every log, and a
+// two-sensor merge was wrong on one side whichever calibration was given (found in review).
+
+// perLogValue is one LOG=VALUE of a flag given per log.
+type perLogValue struct {
+	log, value string
+}
+
+// splitPerLog parts the values given to flag into the bare one, which
+// applies to every log not named (at most one), and those given as
+// LOG=VALUE. isBare says whether a value with "=" in it is a bare value
+// still (a calibration file whose name holds "="); nil: never.
+func splitPerLog(flag string, values []string, isBare func(string) bool) (bare string, named []perLogValue, err error) {
+	hasBare := false
+	for _, v := range values {
+		log, val, ok := strings.Cut(v, "=")
+		if ok && isBare != nil && isBare(v) {
+			ok = false
+		}
+		if !ok {
+			if hasBare {
+				return "", nil, usageErrorf("--%s given twice without a log (%s and %s): a bare value applies to every log not named; give the others as --%s LOG=VALUE", flag, bare, v, flag)
+			}
+			bare, hasBare = v, true
+			continue
+		}
+		log, val = strings.TrimSpace(log), strings.TrimSpace(val)
+		if log == "" || val == "" {
+			return "", nil, usageErrorf("--%s %s: want LOG=VALUE, the log as given on the command line (or its base name) and its own value", flag, v)
+		}
+		named = append(named, perLogValue{log: log, value: val})
+	}
+	return bare, named, nil
+}
+
+// resolvePerLog matches each named log to the survey logs, by the path as
+// given or by its base name, and returns the value of each log index that
+// was named. A name that is none of the logs is refused, naming it; so is
+// a log named twice, and a base name that several logs share.
+func resolvePerLog(flag string, named []perLogValue, logs []string) (map[int]string, error) {
+	if len(named) == 0 {
+		return nil, nil
+	}
+	out := map[int]string{}
+	for _, nv := range named {
+		k := -1
+		for i, l := range logs {
+			if l == nv.log || filepath.Clean(l) == filepath.Clean(nv.log) {
+				k = i
+				break
+			}
+		}
+		if k < 0 {
+			var hits []int
+			for i, l := range logs {
+				if filepath.Base(l) == nv.log {
+					hits = append(hits, i)
+				}
+			}
+			if len(hits) > 1 {
+				return nil, usageErrorf("--%s %s=%s: %s is the name of %d of the logs (%s and %s): name the log by its path as given", flag, nv.log, nv.value, nv.log, len(hits), logs[hits[0]], logs[hits[1]])
+			}
+			if len(hits) == 1 {
+				k = hits[0]
+			}
+		}
+		if k < 0 {
+			return nil, usageErrorf("--%s %s=%s: %s is not one of the logs given (%s); name a log as given on the command line or by its base name", flag, nv.log, nv.value, nv.log, strings.Join(logs, ", "))
+		}
+		if prev, ok := out[k]; ok {
+			return nil, usageErrorf("--%s names %s twice (%s and %s): give one value for each log", flag, logs[k], prev, nv.value)
+		}
+		out[k] = nv.value
+	}
+	return out, nil
+}
+
+// calibrationIsBare says whether a --calibration value with "=" in it is a
+// file's name (an existing file whose name holds "=") rather than LOG=FILE.
+func calibrationIsBare(v string) bool {
+	if _, f, _ := strings.Cut(v, "="); f != "" {
+		if st, err := os.Stat(f); err == nil && !st.IsDir() {
+			return false
+		}
+	}
+	st, err := os.Stat(v)
+	return err == nil && !st.IsDir()
+}
+
+// withPerLogNote adds perLogNote to err when it is about a log's columns
+// (a column missing, or a mapping naming a column the log lacks) and
+// several logs were given; a usage error stays one.
+func withPerLogNote(err error, logs []string) error {
+	n := perLogNote(logs)
+	if err == nil || n == "" || !strings.Contains(err.Error(), "no column") {
+		return err
+	}
+	var ue *usageError
+	if errors.As(err, &ue) {
+		return usageErrorf("%s%s", err.Error(), n)
+	}
+	return fmt.Errorf("%w%s", err, n)
+}
+
+// perLogNote is the hint added to an error about a log's columns when
+// several logs were given: the input flags apply to every log alike.
+func perLogNote(logs []string) string {
+	if len(logs) < 2 {
+		return ""
+	}
+	return fmt.Sprintf("; the input flags (--column, --unit, --time-offset, ...) apply to all %d logs alike: for logs from different instruments or crews, run \"undercurrent convert\" on each log with its own --column, --unit and --time-offset first, then locate the converted logs together", len(logs))
+}
+
+// loadCalibrations loads the calibration of each log: the one named for
+// it (--calibration LOG=CAL.json), else the bare one, else none (nil, "").
+// Each file is loaded once and recorded among doc's inputs; doc's
+// calibration names them, with the logs each was applied to when they are
+// not one for all.
+func loadCalibrations(o *locateOptions, logs []string, doc *report.Document) ([]*calibrate.Calibration, []string, error) {
+	cals, paths := make([]*calibrate.Calibration, len(logs)), make([]string, len(logs))
+	named, err := resolvePerLog("calibration", o.calPerLog, logs)
+	if err != nil {
+		return nil, nil, err
+	}
+	loaded := map[string]*calibrate.Calibration{}
+	var order []string // the files in the order first applied
+	for k := range logs {
+		p, ok := named[k]
+		if !ok {
+			p = o.calibration
+		}
+		if p == "" {
+			continue
+		}
+		c, ok := loaded[p]
+		if !ok {
+			if c, err = calibrate.Load(p); err != nil {
+				return nil, nil, err
+			}
+			loaded[p] = c
+			order = append(order, p)
+			doc.Inputs = append(doc.Inputs, fileInput("calibration", p, 0))
+		}
+		cals[k], paths[k] = c, p
+	}
+	if len(order) == 0 {
+		return cals, paths, nil
+	}
+	all := true
+	for k := range logs {
+		all = all && paths[k] == order[0]
+	}
+	if all {
+		doc.Calibration = &report.Correction{File: order[0], Summary: loaded[order[0]].Summary()}
+		return cals, paths, nil
+	}
+	// Several calibrations, or some logs without: each file with the logs
+	// it corrected, and the logs left as read.
+	var files, sums []string
+	for _, p := range order {
+		var on []string
+		for k, l := range logs {
+			if paths[k] == p {
+				on = append(on, l)
+			}
+		}
+		files = append(files, p)
+		sums = append(sums, fmt.Sprintf("%s on %s: %s", p, strings.Join(on, ", "), loaded[p].Summary()))
+	}
+	var none []string
+	for k, l := range logs {
+		if paths[k] == "" {
+			none = append(none, l)
+		}
+	}
+	if len(none) > 0 {
+		sums = append(sums, "no calibration on "+strings.Join(none, ", "))
+	}
+	doc.Calibration = &report.Correction{File: strings.Join(files, " + "), Summary: strings.Join(sums, "; ")}
+	return cals, paths, nil
+}
+
+// baseApartHint says what to do with a base record that overlaps no
+// survey log.
+const baseApartHint = "give the base record made during the survey (check its date and the logs' time zones, --time-offset), or leave --base out to locate without the base correction"
+
+// baseUncovered is the warning for the survey logs (apart) that the base
+// record lies wholly outside of, left as read beside the logs it corrected;
+// errs are the errors that said so, one for each. When it covers none of
+// the logs, the run is refused with the first of them and what to do.
+func baseUncovered(basePath string, logs, apart []string, errs []error) (string, error) {
+	if len(apart) == len(logs) {
+		return "", fmt.Errorf("%w; the base record overlaps none of the %d logs: %s", errs[0], len(logs), baseApartHint)
+	}
+	return fmt.Sprintf("--base %s: the base record does not overlap %s, which %s left without the base correction (the Earth's daily variation is left in %s readings, as in a run without --base); the other logs were corrected. To correct every log, give a base record for each day (--base may be given more than once); to treat the logs alike, leave --base out, or locate the logs the base covers in a run of their own",
+		basePath, strings.Join(apart, ", "), map[bool]string{true: "is", false: "are"}[len(apart) == 1], map[bool]string{true: "its", false: "their"}[len(apart) == 1]), nil
+}
