@@ -43,8 +43,17 @@ func TestPositionScatterOneAxisRounded(t *testing.T) {
 	if north < 0.02 || east > 0.002 {
 		t.Fatalf("fixture: north scatters %.4f m, east %.4f m; want north over 2 cm and east under 2 mm", north, east)
 	}
-	plan, _, _ := positionScatter(pts)
+	// Along the one track (sensorTracks' split is not at issue here).
+	all := make([]int, len(pts))
+	for i := range all {
+		all[i] = i
+	}
+	plan, _, _ := trackScatter(pts, [][]int{all})
 	if math.Abs(plan-north) > 0.05*north {
 		t.Errorf("plan scatter %.4f m with the latitude rounded to float32, want north's own %.4f m (east's %.4f m)", plan, north, east)
+	}
+	// And as the warning measures it, split or not: not east's.
+	if p, _, _ := positionScatter(pts); p < 0.5*north {
+		t.Errorf("positionScatter %.4f m, want at least half north's %.4f m", p, north)
 	}
 }

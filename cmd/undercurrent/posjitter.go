@@ -67,6 +67,19 @@ func positionScatter(pts [][3]float64) (plan, up, spacing float64) {
 // 34 mm; found in review, with no warning and the misfit taken for the
 // sensor's noise).
 func trackScatter(pts [][3]float64, tracks [][]int) (plan, up, spacing float64) {
+	plan, _, up, spacing = trackScatterPooled(pts, tracks)
+	return plan, up, spacing
+}
+
+// trackScatterPooled is trackScatter that also returns the plan's scatter
+// pooled over east and north (the median of both axes' differences
+// together), for levelMisfit: positions rounded to a centimetre on a
+// steady walk make a periodic pattern on one axis, whose fourth
+// differences read above the rounding's own error (up to 16 times the
+// pattern's amplitude, against the square root of 70 for independent
+// errors), and that check bounds the rounding by its step instead
+// (positionQuantum).
+func trackScatterPooled(pts [][3]float64, tracks [][]int) (plan, pooled, up, spacing float64) {
 	var de, dn, dz, sp []float64
 	for _, tr := range tracks {
 		n := len(tr)
@@ -77,7 +90,7 @@ func trackScatter(pts [][3]float64, tracks [][]int) (plan, up, spacing float64) 
 			for k := range 3 {
 				v := pts[tr[i-2]][k] - 4*pts[tr[i-1]][k] + 6*pts[tr[i]][k] - 4*pts[tr[i+1]][k] + pts[tr[i+2]][k]
 				if math.IsNaN(v) || math.IsInf(v, 0) {
-					return 0, 0, 0
+					return 0, 0, 0, 0
 				}
 				switch k {
 				case 0:
@@ -97,10 +110,10 @@ func trackScatter(pts [][3]float64, tracks [][]int) (plan, up, spacing float64) 
 		}
 	}
 	if len(de) == 0 {
-		return 0, 0, 0
+		return 0, 0, 0, 0
 	}
 	k := madNormal * math.Sqrt(70)
-	return max(medianOf(de), medianOf(dn)) / k, medianOf(dz) / k, medianOf(sp)
+	return max(medianOf(de), medianOf(dn)) / k, medianOf(append(de, dn...)) / k, medianOf(dz) / k, medianOf(sp)
 }
 
 // maxSensorsInTurn is the most sensors logged in turn in one group's rows
@@ -135,7 +148,10 @@ func sensorTracks(pts [][3]float64) [][]int {
 	}
 	scat := make([]float64, maxSensorsInTurn+1)
 	for k := 1; k <= maxSensorsInTurn && len(pts) >= k*minDiffReadings; k++ {
-		p, u, _ := trackScatter(pts, split(k))
+		// Pooled over east and north, as the split was tuned: the
+		// larger axis's scatter moved the split of rounded positions
+		// (TestRoundedPositionsNoFalseTurn).
+		_, p, u, _ := trackScatterPooled(pts, split(k))
 		scat[k] = math.Max(p, u)
 	}
 	if !(scat[1] > 1e-9) { // smooth to well under a micrometre: one track
