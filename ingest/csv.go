@@ -192,6 +192,9 @@ func newCSVReader(name string, rd io.Reader, cfg *config) (*csvReader, error) {
 			text := strings.TrimSpace(strings.TrimPrefix(strings.TrimSpace(r.headText(ln, lineNo)), cfg.comment))
 			if k, v, ok := strings.Cut(text, ":"); ok && strings.HasPrefix(k, "undercurrent.") && !strings.ContainsAny(k, " \t") {
 				meta[k] = strings.TrimSpace(v)
+				if err := originLineErr(name, lineNo, k, meta[k]); err != nil {
+					return nil, err
+				}
 			}
 			continue
 		}
@@ -1233,6 +1236,13 @@ func (r *csvReader) parseJob(j csvJob, rb *rawBatch) csvResult {
 			res.firstText = r.timeTextAt(j, res.firstLine)
 		}
 		return res
+	}
+	if i, col, msg := pl.checkLatLon(rb); i >= 0 {
+		line := 0
+		if i < len(rb.line) {
+			line = rb.line[i]
+		}
+		return csvResult{err: lineErr(r.name, line, col, "", "%s", msg), firstTime: math.NaN(), lastTime: math.NaN()}
 	}
 	pl.transform(rb)
 	var noFixAt []string

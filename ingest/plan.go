@@ -431,6 +431,10 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 		case k == MetaOrigin:
 			var g Geodetic
 			if _, err := fmt.Sscanf(v, "%g %g %g", &g.Lat, &g.Lon, &g.H); err == nil {
+				if _, m := latLonProblem(g.Lat, g.Lon, originSwapFix); m != "" {
+					return nil, fileErr(file, nil, "its origin (metadata %s, in a CSV log the line \"# %s: %s\"): %s", MetaOrigin, MetaOrigin, v, m)
+				}
+				g = p.wrapOrigin(g, "metadata "+MetaOrigin)
 				p.origin = &g
 			}
 		case strings.HasPrefix(k, MetaPrefix):
@@ -680,6 +684,10 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 		switch cfg.originMode {
 		case originFixed:
 			o := cfg.origin
+			if _, m := latLonProblem(o.Lat, o.Lon, "the origin is given latitude first"); m != "" {
+				return nil, fileErr(file, nil, "the origin given (WithOrigin, on the command line --origin): %s", m)
+			}
+			o = p.wrapOrigin(o, "the origin given")
 			p.origin = &o
 		default:
 			p.origin = nil // set from the first reading by the reader
@@ -1143,6 +1151,7 @@ func defaultUnit(k kind) string {
 // setOrigin fixes the ENU origin (when it comes from the data) and
 // rebuilds the schema metadata.
 func (p *plan) setOrigin(o Geodetic) {
+	o = p.wrapOrigin(o, "its first reading")
 	p.origin = &o
 	p.enu = o.frame()
 	p.zeroNoFix = greatCircleKm(Geodetic{}, o) > noFixKm

@@ -571,8 +571,17 @@ Examples:
 // 530 km of easting would be read as 530 km from it (found in review);
 // such a log is told to give latitude and longitude instead, and that the
 // file's coordinates lie outside RFC 7946's range.
+//
+// With an origin the grid check applies too (found in review: UTM
+// eastings and northings under an origin line were placed 5,800 km away,
+// in the Russian Far East, without a word): readings centred over
+// originGridM from the origin are refused when read (gridUnderOrigin), and
+// a document holding such readings all the same gets that message here.
 func localGeoJSONWarning(doc *report.Document) string {
 	if doc.Frame.Origin != nil {
+		if e, n, far := gridLike(doc); far && math.Hypot(e, n) > originGridM {
+			return report.FileGeoJSON + ": " + gridUnderOriginText(e, n)
+		}
 		return ""
 	}
 	if e, n, ok := gridLike(doc); ok {
@@ -591,6 +600,59 @@ func localGeoJSONWarning(doc *report.Document) string {
 // within a few kilometres of it, while grid eastings and northings run to
 // hundreds of kilometres.
 const gridLikeM = 20e3
+
+// originGridM is how far from the origin its origin line names, m, a
+// log's readings may be centred: an origin line places metres east and
+// north of a nearby point, and a survey converted from latitude and
+// longitude about its first reading (convert) stays within tens of
+// kilometres of it even along a long route, while a projected grid's
+// eastings and northings lie hundreds to thousands of kilometres from any
+// point (UTM eastings 166 to 834 km, northings up to 9,300 km; a national
+// grid's hundreds of km from its false origin).
+const originGridM = 100e3
+
+// gridUnderOriginText says that positions centred at east e, north n
+// metres from their origin are a projected grid's, not metres from the
+// origin line's point.
+func gridUnderOriginText(e, n float64) string {
+	return fmt.Sprintf("the readings lie about %.0f km from the origin the log's origin line names (centred about %.0f m east, %.0f m north of it): "+
+		"an origin line is for metres east and north from a nearby point, and these x, y look like a projected grid's eastings and northings (a national grid or UTM), "+
+		"which about the origin would place the survey %.0f km away; give the log latitude and longitude (lat, lon and height columns) instead, and leave the origin line out",
+		math.Hypot(e, n)/1e3, e, n, math.Hypot(e, n)/1e3)
+}
+
+// gridUnderOrigin refuses a log whose x, y are about an origin (its origin
+// line) but whose readings are centred over originGridM from it
+// (gridUnderOriginText); nil otherwise, or when x, y came from latitude
+// and longitude.
+func gridUnderOrigin(s *ingest.Samples, geo bool) error {
+	if geo || s.Origin == nil {
+		return nil
+	}
+	e, n, ok := meanPlan(s.X, s.Y)
+	if !ok || math.Hypot(e, n) <= originGridM {
+		return nil
+	}
+	return fmt.Errorf("%s: %s", s.Source, gridUnderOriginText(e, n))
+}
+
+// meanPlan returns the mean of the finite x, y pairs, and whether there
+// was one.
+func meanPlan(x, y []float64) (e, n float64, ok bool) {
+	k := 0
+	for i := range min(len(x), len(y)) {
+		if math.IsNaN(x[i]) || math.IsInf(x[i], 0) || math.IsNaN(y[i]) || math.IsInf(y[i], 0) {
+			continue
+		}
+		e += x[i]
+		n += y[i]
+		k++
+	}
+	if k == 0 {
+		return 0, 0, false
+	}
+	return e / float64(k), n / float64(k), true
+}
 
 // gridLike returns the mean of doc's groups' centroids, east and north,
 // and whether it lies over gridLikeM from the frame's origin.
@@ -2606,6 +2668,9 @@ func (sv *survey) sameOrigin(o *locateOptions, s *ingest.Samples) (string, error
 	flag, given := o.given["origin"]
 	fixed, isFixed := fixedOrigin(flag)
 	geo := sv.geodetic[s.Source]
+	if err := gridUnderOrigin(s, geo); err != nil {
+		return "", err
+	}
 	if !geo && s.Origin == nil && len(sv.geodetic) > 0 {
 		var named []string
 		for _, p := range sv.logs {
