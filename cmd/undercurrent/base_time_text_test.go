@@ -37,6 +37,11 @@ func TestBaseLogLocalTimes(t *testing.T) {
 		if err := json.Unmarshal([]byte(out), &doc); err != nil {
 			t.Fatalf("locate --json output is not JSON: %v\n%.500s", err, out)
 		}
+		// Each group names its log's path, which differs between the
+		// copies compared here by design.
+		for i := range doc.Groups {
+			doc.Groups[i].Log = ""
+		}
 		return &doc
 	}
 	args := []string{"locate", "--json", "--group-by", "group", "--time-offset", "+02:00", "--date-order", "dmy"}
