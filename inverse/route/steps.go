@@ -786,8 +786,10 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64, bs 
 		}
 		// A step that only a doubtful station makes (a summed split, a
 		// station a bend nearby tilts) is information (hinges).
+		// (With the trend disabled every raw difference is a step, as
+		// asked.)
 		hingeText := ""
-		if severity != SeverityInfo {
+		if severity != SeverityInfo && set.trendWindow() > 0 {
 			if t, ok := hinges(uo, doubt, set, tau, ia, ib, runLo(runs, r, len(u)), runHi(runs, r, len(u)), d.expB, hsize); ok {
 				severity, hingeText = SeverityInfo, t
 			}
@@ -796,7 +798,7 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64, bs 
 		// transition's width left free, is under warnSigmas of its sigma
 		// (the sharp step that found it says there is a change, not how
 		// large).
-		if severity == SeverityWarning && !(math.Abs(pl.step) > warnSigmas*pl.sigma) {
+		if severity == SeverityWarning && set.trendWindow() > 0 && !(math.Abs(pl.step) > warnSigmas*pl.sigma) {
 			severity = SeverityCaution
 		}
 		f := Finding{
@@ -1252,7 +1254,8 @@ func runHi(runs [][2]int, r, n int) int {
 // (hinges): for a station whose dip departs from its neighbours' slope,
 // the current's sigma bendDoubt widens it to (a bend nearby tilts its
 // line); for a summed same-way split (Station.SummedSplit), a thousand
-// times its current, which leaves it out. (bendDoubt runs on the route
+// times its current, which leaves it out, where such splits are fewer
+// than half the usable stations. (bendDoubt runs on the route
 // after the steps are found; here it runs on a copy.)
 func doubtSigmas(ps []Placed, set *Settings) map[*Placed]float64 {
 	cp := make([]Placed, len(ps))
@@ -1261,6 +1264,21 @@ func doubtSigmas(ps []Placed, set *Settings) map[*Placed]float64 {
 		cp[k].Bend = nil
 	}
 	bendDoubt(cp, set)
+	// Where most stations are summed splits the route follows two close
+	// same-way conductors throughout and their sum is its current, not a
+	// bend's exception: cables 0.8 m apart summed at nearly every
+	// traverse rise by the 18 A joining one of them (report
+	// TestCloseCablesSplitAnyDatum).
+	n, summed := 0, 0
+	for k := range ps {
+		if ps[k].usable() {
+			n++
+			if ps[k].SummedSplit {
+				summed++
+			}
+		}
+	}
+	sumsDoubtful := 2*summed < n
 	out := map[*Placed]float64{}
 	for k := range ps {
 		p := &ps[k]
@@ -1268,7 +1286,7 @@ func doubtSigmas(ps []Placed, set *Settings) map[*Placed]float64 {
 			continue
 		}
 		switch {
-		case p.SummedSplit:
+		case p.SummedSplit && sumsDoubtful:
 			out[p] = 1e3 * math.Max(math.Abs(p.Current), p.CurrentSigma)
 		case cp[k].Bend != nil && cp[k].Bend.CurrentSigma > p.CurrentSigma:
 			out[p] = cp[k].Bend.CurrentSigma
