@@ -1094,6 +1094,7 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute boo
 			st.Phase, st.PhaseSigma = sw.NetCurrentPhase, sw.NetCurrentPhaseSigma
 			st.Depth, st.DepthSigma = depth, depthSigma
 			partner = sw.Lines[1]
+			st.SummedSplit = true
 		} else if s.Identifiable.Dip && finite(s.DipSigma) && s.DipSigma > 0 {
 			// The route compares the line's dip with its neighbours'
 			// depths (route.BendDoubt); a pair's or a summed split's
