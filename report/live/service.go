@@ -681,6 +681,11 @@ func (s *Service) publishFenced(fenced func() error, msg *nats.Msg, id string) (
 // refused because the server's (or the account's) storage is used up.
 const errCodeInsufficientResources = 10023
 
+// StoreRefused reports whether err is a write the broker refused for want
+// of storage (JetStream "insufficient resources", err_code 10023): its
+// store, or the account's share of it, is full.
+func StoreRefused(err error) bool { return storeRefused(err) }
+
 // storeRefused reports whether err is a write refused for want of storage.
 func storeRefused(err error) bool {
 	var je jetstream.JetStreamError
