@@ -57,6 +57,10 @@ type Config struct {
 	// failed a write; such a stream refuses every write until the broker
 	// is restarted. The worker calls it at each lease round.
 	StoreCheck func() error
+	// Version and Revision name the running build (the module version,
+	// and the VCS revision it was built from, "" when not recorded):
+	// exported as uc_build_info{version,revision} 1.
+	Version, Revision string
 	// OnEstimate, when set, is called after each estimate is acknowledged
 	// with the time since its window closed (load tests).
 	OnEstimate func(e *Estimate, latency time.Duration)
@@ -162,6 +166,9 @@ func New(cfg Config) (*Service, error) {
 	s := &Service{site: cfg.Site, nc: cfg.Conn, id: cfg.Worker, log: cfg.Logger, met: newMetrics(),
 		newEstimator: cfg.NewEstimator, commissioner: cfg.Commissioner, onEstimate: cfg.OnEstimate,
 		httpAddr: cfg.HTTP, memory: cfg.Memory, external: cfg.External, storeBytes: cfg.StoreBytes, storeCheck: cfg.StoreCheck, held: map[string]*holding{}, leftElsewhere: map[string]bool{}, ready: make(chan struct{})}
+	if cfg.Version != "" || cfg.Revision != "" {
+		s.met.buildInfo(cfg.Version, cfg.Revision)
+	}
 	if s.id == "" {
 		host, _ := os.Hostname()
 		var b [3]byte
