@@ -189,7 +189,7 @@ func (w *assetWorker) run(ctx context.Context) error {
 		}
 	})()
 	w.lctx = lctx
-	defer w.flushRefused(time.Now(), true)
+	defer func() { w.flushRefused(time.Now(), true) }()
 	err := w.runAsset(ctx)
 	if f := w.fenced(); f != nil && (err == nil || errors.Is(err, f)) {
 		return nil // stopped on purpose; logged where it stopped
