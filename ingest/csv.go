@@ -273,11 +273,14 @@ func newCSVReader(name string, rd io.Reader, cfg *config) (*csvReader, error) {
 	if r.decComma && r.delim == ',' && !r.ws {
 		return nil, fileErr(name, nil, "decimal commas need a delimiter other than the comma (in a comma-delimited file they are not read, quoted or not): save the file again with ';' as the delimiter, or with decimal points")
 	}
+	if err := r.checkDigitGrouping(lineNo + 1 + bytes.Count(carry, []byte{'\n'})); err != nil {
+		return nil, err
+	}
 	if r.decComma {
 		pl.meta["decimal_separator"] = ","
 		pl.buildSchema()
 	}
-	r.fast = !r.ws && r.delim != '"' && !cfg.slowOnly && !r.decComma
+	r.fast = !r.ws && r.delim != '"' && !cfg.slowOnly && !r.decComma && pl.timeJoin < 0
 	startLine := lineNo + 1
 	if pl.geodetic && pl.origin == nil {
 		// The origin is the first reading: parse ahead to it. A reading at
@@ -779,7 +782,8 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch, plain bool) 
 	pl, cfg := r.pl, r.cfg
 	comment := []byte(cfg.comment)
 	var fields [][]byte
-	var num []byte // a decimal-comma number rewritten with a point
+	var num []byte    // a decimal-comma number rewritten with a point
+	var joined []byte // a date and a time of day joined (time=DATE+TIME)
 	need := rb.n + bytes.Count(data, []byte{'\n'}) + 1
 	for _, u := range r.used {
 		if u.c != cGroup {
@@ -892,6 +896,14 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch, plain bool) 
 			// Blanks inside quotes around a number are blanks as outside
 			// them (and as the Arrow text path trims them): " 150 " is 150.
 			t = bytes.Trim(t, " \t")
+			if u.c == cTime && pl.timeJoin >= 0 && pl.timeJoin < len(fields) {
+				if clock := bytes.Trim(trimField(fields[pl.timeJoin]), " \t"); len(t) > 0 && len(clock) > 0 {
+					joined = append(append(append(joined[:0], t...), ' '), clock...)
+					t = joined
+				} else {
+					t = nil // half a time is a missing one
+				}
+			}
 			var v float64
 			var ok bool
 			var badDate string
@@ -933,6 +945,8 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch, plain bool) 
 					case hint != "":
 						// A time of day or a local date: its comma or
 						// points are not a number's.
+					case groupingHint(t, r.decComma) != "":
+						what += groupingHint(t, r.decComma)
 					case r.decComma && bytes.IndexByte(t, '.') >= 0:
 						// Only a point the setting rejects: "+0200" or a
 						// word held none, and the hint sent the user

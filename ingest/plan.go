@@ -75,6 +75,10 @@ type plan struct {
 	zeroNoFix bool
 	noFixRows int64
 	noFixAt   []string
+
+	// timeJoin is the time-of-day column joined after the date column
+	// src[cTime] with a space (a mapping time=DATE+TIME); -1 when none.
+	timeJoin int
 }
 
 // noFixKm is the least distance, km, of a latitude/longitude log's origin
@@ -218,7 +222,7 @@ func (p *plan) naiveTime(where, what string, typed bool) {
 		return
 	}
 	p.naiveWarned = true
-	fix := "write the offset into the times (2026-04-21T09:40:00+01:00)"
+	fix := "write the offset into the times (2026-04-21T09:40:00+01:00) or give it (WithTimeOffset, on the command line --time-offset +01:00)"
 	if typed {
 		fix = "store them as timestamps with a time zone"
 	}
@@ -378,6 +382,28 @@ func (p *plan) mappings() []ColumnMapping {
 // newPlan resolves the input's column names against the options.
 // headerLine is the line of a text file's header (0 when there is none),
 // for messages.
+// joinedTime finds the two columns of a time mapping DATE+TIME (spec),
+// trying each "+" in turn so that a name holding one still matches.
+func (p *plan) joinedTime(spec string, find func(string) int) (date, clock int, err error) {
+	for k := 0; k < len(spec); k++ {
+		if spec[k] != '+' {
+			continue
+		}
+		d, t := find(strings.TrimSpace(spec[:k])), find(strings.TrimSpace(spec[k+1:]))
+		if d < 0 || t < 0 {
+			continue
+		}
+		if p.format != string(FormatCSV) {
+			return 0, 0, fileErr(p.file, nil, "mapping time=%s: a date column and a time column are joined in CSV files only; give one time column (convert the log with the two joined, or export it as CSV)", spec)
+		}
+		if d == t {
+			return 0, 0, fileErr(p.file, nil, "mapping time=%s: the date and the time of day name the same column", spec)
+		}
+		return d, t, nil
+	}
+	return 0, 0, fileErr(p.file, nil, "mapping time=%s: no column %q, and no two columns DATE+TIME of that name to join (columns found: %s)", spec, spec, columnList(p.header))
+}
+
 func newPlan(file, format string, header []string, types []arrow.DataType, meta map[string]string, headerLine int, cfg *config) (*plan, error) {
 	p := &plan{file: file, format: format, header: header, schemaTypes: types, cfg: cfg, meta: map[string]string{}}
 	for i := range p.src {
@@ -435,8 +461,21 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 		}
 		return -1
 	}
+	p.timeJoin = -1
 	for c, name := range cfg.mapping {
 		i := find(name)
+		if i < 0 && c == cTime && strings.Contains(name, "+") {
+			// time=DATE+TIME: a date column and a time-of-day column,
+			// as European and Windows loggers write them, joined with a
+			// space before the time is parsed.
+			d, t, err := p.joinedTime(name, find)
+			if err != nil {
+				return nil, err
+			}
+			p.src[c], p.timeJoin = d, t
+			p.desc[c] = header[d] + "+" + header[t]
+			continue
+		}
 		if i < 0 {
 			return nil, fileErr(file, nil, "mapping %s=%s: no column %q (columns found: %s)", canonNames[c], name, name, columnList(header))
 		}
@@ -447,6 +486,9 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 		if i >= 0 {
 			taken[i] = true
 		}
+	}
+	if p.timeJoin >= 0 {
+		taken[p.timeJoin] = true
 	}
 	unitFromName := [nCanon]string{}
 	// Canonical names first, then aliases: a column named exactly x is

@@ -265,6 +265,11 @@ type Signal struct {
 	// window and not reported (the mains and their odd harmonics beside
 	// an injected tracer); empty when none were.
 	NuisanceHz []float64 `json:"nuisance_hz,omitempty"`
+	// PhasesWithinGroups is set when some group was fitted with a phase
+	// ramp (the field's frequency off the one demodulated at): the phases
+	// then compare between the conductors of a group, not along the route
+	// (PhaseWords).
+	PhasesWithinGroups bool `json:"phases_within_groups,omitempty"`
 }
 
 // MinCover is a minimum depth of cover and where it comes from.

@@ -1073,7 +1073,7 @@ func (v *view) summarise() {
 			sentence := fmt.Sprintf("%s is %s and %s%s",
 				what, endClause(d, r, &a, "chainage "), endClause(d, r, &b, ""), firstWalkClause(r))
 			if strings.Contains(sentence, "∠") {
-				sentence += " (phase angles " + PhaseAngleWords + ")"
+				sentence += " (phase angles " + PhaseWords(d.Signal) + ")"
 			}
 			v.Headline = append(v.Headline, sentence+".")
 			// The shallowest station is taken from every used one (cover is

@@ -237,6 +237,23 @@ func stationPhase(d *Document, s Station) string {
 // (GeoPhaseReference) in plain words.
 const PhaseAngleWords = "in degrees against a reference timed from the log's clock, not the supply's phases: compare them between conductors and along the route"
 
+// PhaseAngleWordsWithinGroups is PhaseAngleWords where groups were fitted
+// with phase ramps (Signal.PhasesWithinGroups): the reference then turns
+// from group to group. Before, a 152 Hz tracer demodulated 0.0008 Hz off
+// the frequency its groups' ramps agreed on turned 12.8° a group, 172.5°
+// to 121.2° along the route at sigmas of 0.05°, under a header telling to
+// compare them along the route (found in review).
+const PhaseAngleWordsWithinGroups = "in degrees against a reference timed from the log's clock, not the supply's phases: compare them between the conductors of a group, not along the route (the groups were fitted with phase ramps, see the warnings)"
+
+// PhaseWords is the words on the phase angles for the signal sig:
+// PhaseAngleWords, or PhaseAngleWordsWithinGroups.
+func PhaseWords(sig Signal) string {
+	if sig.PhasesWithinGroups {
+		return PhaseAngleWordsWithinGroups
+	}
+	return PhaseAngleWords
+}
+
 // trackPhaseClause words further conductor t's phase relative to
 // conductor 1 for its summary sentence (as results.json's
 // phase_from_conductor_1_deg gives it): ", its phase -120.0 ± 0.02° from

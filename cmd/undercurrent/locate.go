@@ -49,6 +49,8 @@ type locateOptions struct {
 	baseUnits   []string
 	baseColumns []string
 	baseFrame   string // --base-frame: enu or ned ("" the file's own)
+	baseDates   string // --base-date-order: the base log's date order
+	baseOffset  string // --base-time-offset: the base log's UTC offset
 	freq        float64
 	window      float64
 	mainsText   string
@@ -135,6 +137,8 @@ func (o *locateOptions) setFlags(fs *pflag.FlagSet) {
 	fs.StringSliceVar(&o.baseColumns, "base-column", nil, "name the base log's columns, `CANON=NAME` as --column does for the survey logs (time=Time,bx=magX,by=magY,bz=magZ); not for an IAGA-2002 base")
 	fs.StringSliceVar(&o.baseUnits, "base-unit", nil, "units of the base log's columns, `CANON=UNIT` as --unit gives them for the survey logs (bx=uT,by=uT,bz=uT); a base log whose field is as steady as the Earth's but whose median lies outside the Earth's field band in nT is refused without it")
 	fs.StringVar(&o.baseFrame, "base-frame", "", "axes of the base log's field columns, `FRAME` enu or ned (default: the file's \"# undercurrent.frame:\" line or metadata, else enu); --frame applies to the survey logs only; not for an IAGA-2002 base, whose elements say")
+	fs.StringVar(&o.baseDates, "base-date-order", "", "order of day, month and year in the base log's text dates (02.02.2026 14:59:00): dmy, mdy or ymd, as --date-order for the survey logs (default: --date-order's, else such dates are refused)")
+	fs.StringVar(&o.baseOffset, "base-time-offset", "", "UTC offset of the base log's text times written without one, as +01:00, as --time-offset for the survey logs (default: they are read as UTC with a warning; --time-offset applies to the survey logs only, since a base log is often another instrument's, kept in UTC)")
 	fs.Float64Var(&o.freq, "freq", 0, "demodulate the AC field at `HZ` (50, 60, 16.7, 512...) and fit RMS currents with phase; the field's own frequency is then estimated from the log, and if it is off (a grid at 50.1 Hz) the log is demodulated at the estimate, with a warning saying so (too far off, it refuses and names the frequency found); without --freq the DC field is fitted (no frequency is estimated and AC is not looked for)")
 	fs.StringVar(&o.mainsText, "mains", "50,60", "with --freq at another frequency than the mains (an injected tracer, 16.7 Hz), fit the mains `HZ` (50, 60, both as 50,60, or none) and their odd harmonics alongside in every window, so that a strong mains field changing as the sensor walks does not leak into the signal as noise")
 	fs.Float64Var(&o.window, "window", 0, "AC demodulation window, `S` seconds (default: ten cycles at 50 or 60 Hz; at any other frequency ten cycles or 0.1 s, whichever is longer, rounded up to a multiple of 0.1 s, so that the window holds whole cycles of the 50 or 60 Hz mains and they do not leak in)")
@@ -764,6 +768,10 @@ type survey struct {
 	// say which logs' on-state readings alone were fitted.
 	interrupted map[string]bool
 	intNotes    []string
+	// leaky holds, for the AC logs in which a fitted mains line too strong
+	// for its distance leaks into the signal, why their groups are not
+	// sound (demodPlan.strongLine).
+	leaky map[string]string
 	// baseGaps are the gaps of the base record that survey readings fell
 	// in (basegaps.go).
 	baseGaps []baseGapUse
@@ -870,6 +878,12 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 	}
 	if o.baseFrame != "" && o.base == "" {
 		return nil, usageErrorf("--base-frame needs --base")
+	}
+	if o.baseDates != "" && o.base == "" {
+		return nil, usageErrorf("--base-date-order needs --base")
+	}
+	if o.baseOffset != "" && o.base == "" {
+		return nil, usageErrorf("--base-time-offset needs --base")
 	}
 	if err := checkSurveyCopies(logs); err != nil {
 		return nil, err
@@ -996,6 +1010,16 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			// A time column rounded to one value (an AC log is refused
 			// with the same words by the demodulation).
 			sv.warnings = append(sv.warnings, path+": "+w+"; the readings were fitted, but nothing that takes their times (a base station's correction, the drift, the order of the walks) can be trusted")
+		} else if step, w := ingest.CoarseStamps(s.Time); w != "" && !sv.ac {
+			// Times to the whole minute: a base correction pairs the
+			// readings with the base up to a step off.
+			if base != nil {
+				w += fmt.Sprintf("; the base correction (--base) paired each reading with the base at its written time, so the pairing may be up to %g s off", step)
+			}
+			sv.warnings = append(sv.warnings, path+": "+w)
+		}
+		if w := ingest.ClockChangeForward(s.Time, s.X, s.Y, s.Group); w != "" {
+			sv.warnings = append(sv.warnings, path+": "+w)
 		}
 		if sv.ac {
 			// Stale stamps put at their place in the sampling
@@ -1492,6 +1516,20 @@ func baseUnitOptions(o *locateOptions, logs []string, bopts []ingest.Option) ([]
 		}
 		bopts = append(append([]ingest.Option(nil), bopts...), ingest.WithFrame(f))
 	}
+	if o.baseDates != "" {
+		d, err := ingest.ParseDateOrder(o.baseDates)
+		if err != nil {
+			return nil, usageErrorf("--base-date-order %q: want dmy (21/04/2026), mdy (4/21/2026) or ymd (2026/04/21)", o.baseDates)
+		}
+		bopts = append(append([]ingest.Option(nil), bopts...), ingest.WithDateOrder(d))
+	}
+	if o.baseOffset != "" {
+		off, err := ingest.ParseTimeOffset(o.baseOffset)
+		if err != nil {
+			return nil, usageErrorf("--base-time-offset %s", strings.TrimPrefix(err.Error(), "ingest: time offset "))
+		}
+		bopts = append(append([]ingest.Option(nil), bopts...), ingest.WithTimeOffset(off))
+	}
 	if len(o.baseUnits) == 0 {
 		return bopts, nil
 	}
@@ -1573,11 +1611,11 @@ func baseReadError(err error) error {
 		return err
 	}
 	msg := err.Error()
-	if !strings.Contains(msg, "--column ") && !strings.Contains(msg, "--unit ") {
+	if !baseFlagHint.MatchString(msg) {
 		return err
 	}
-	msg = strings.ReplaceAll(strings.ReplaceAll(strings.TrimPrefix(msg, "ingest: "), "--column ", "--base-column "), "--unit ", "--base-unit ")
-	return fmt.Errorf("%s (this is the base log, --base: --column and --unit apply to the survey logs only)", msg)
+	msg = baseWording(strings.TrimPrefix(msg, "ingest: "))
+	return fmt.Errorf("%s (this is the base log, --base: --column, --unit and --time-offset apply to the survey logs only, and --date-order applies to the base log only when --base-date-order is not given)", msg)
 }
 
 // baseWording words a warning of the base log's reader: the survey logs'
@@ -1585,11 +1623,12 @@ func baseReadError(err error) error {
 // do (a base log's times without a UTC offset were told to take
 // "--unit time=UTC", which left the warning as it was).
 func baseWording(w string) string {
-	return baseFlagHint.ReplaceAllString(w, "${1}--base-$2 ")
+	return baseFlagHint.ReplaceAllString(w, "${1}--base-$2$3")
 }
 
-// baseFlagHint matches the survey logs' --column and --unit in advice.
-var baseFlagHint = regexp.MustCompile(`(^|[^-a-z])--(column|unit) `)
+// baseFlagHint matches the survey logs' --column, --unit, --date-order
+// and --time-offset in advice.
+var baseFlagHint = regexp.MustCompile(`(^|[^-a-z])--(column|unit|date-order|time-offset)([ ,;)])`)
 
 // zoneShiftHint says when the base record, moved by a whole number of
 // half hours (up to 14 hours either way, the span of the world's time
@@ -1768,9 +1807,10 @@ func zoneWords(base, rover *ingest.Samples, m int, what string) string {
 	// local words the hint for one log read m minutes late (its local
 	// times of zone UTC+m read as UTC); t0 is its first time.
 	local := func(who string, m int, t0 float64) string {
-		give := ""
+		// The survey logs take --time-offset, the base log
+		// --base-time-offset.
+		give := fmt.Sprintf(", or give it with --base-time-offset %s", zone(m))
 		if who == roverName {
-			// The survey logs take --time-offset; the base log does not.
 			give = fmt.Sprintf(", or give it with --time-offset %s", zone(m))
 		}
 		return fmt.Sprintf("are %s times the local times of a zone UTC%s written without their offset (and so read as UTC)? If so, write the offset into them (such as %s%s)%s", who, zone(m), stamp(t0), zone(m), give)
@@ -2131,7 +2171,16 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 	}
 	res, _, warns, hints, err := demodulateACLeftOut(o, s, sv.clipGaps[s.Source]) // acchecks.go
 	if err != nil {
-		return noWindowAdvice(err, o)
+		return noWindowAdvice(err, o, s)
+	}
+	if w, why := (demodPlan{mains: o.mains, fs: logRate(s)}).strongLine(s, res); w != "" {
+		sv.warnings = append(sv.warnings, s.Source+": "+w)
+		if why != "" {
+			if sv.leaky == nil {
+				sv.leaky = map[string]string{}
+			}
+			sv.leaky[s.Source] = why
+		}
 	}
 	if hints.unchecked {
 		sv.unchecked = append(sv.unchecked, uncheckedLog{source: s.Source, lines: hints.lines, atFreq: hints.atFreq})
@@ -2196,8 +2245,9 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 // noWindowAdvice adds to a refusal for want of one whole demodulation
 // window (calibrate.NoWindowError) what the user can do: repair the time
 // column when breaks in it cut the log short, or give a window that fits
-// in the longest run.
-func noWindowAdvice(err error, o *locateOptions) error {
+// in the longest run, saying when a window that short cannot fit a mains
+// line beside the signal apart (no window then fits both).
+func noWindowAdvice(err error, o *locateOptions, s *ingest.Samples) error {
 	var nw *calibrate.NoWindowError
 	if !errors.As(err, &nw) {
 		return err
@@ -2215,7 +2265,7 @@ func noWindowAdvice(err error, o *locateOptions) error {
 		do = append(do, "log without pauses")
 	}
 	if cycles := math.Floor(nw.LongestS*o.freq + 1e-9); o.freq > 0 && cycles >= 3 {
-		do = append(do, fmt.Sprintf("give a window that fits in the longest run, --window %.4g or shorter (%.0f cycles of %g Hz)", cycles/o.freq, cycles, o.freq))
+		do = append(do, fmt.Sprintf("give a window that fits in the longest run, --window %.4g or shorter (%.0f cycles of %g Hz)", cycles/o.freq, cycles, o.freq)+shortClash(o, s, cycles/o.freq))
 	}
 	if len(do) == 0 {
 		return err
@@ -2446,6 +2496,15 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 			}
 		}
 		head.Warnings = append(kept, w)
+		// Phases then compare within groups only (the summary's header).
+		head.Signal.PhasesWithinGroups = true
+	}
+	for _, g := range sv.groups {
+		// Demodulated at an estimate, whose own uncertainty turns the
+		// phase from group to group (its warning says so).
+		if g.estimated {
+			head.Signal.PhasesWithinGroups = true
+		}
 	}
 	for _, l := range sv.looseLogs {
 		var gs []*group
@@ -2525,6 +2584,8 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 	baseGapsDocument(doc, sv)
 	// Groups of a log with an interrupted current fitted as it is.
 	interruptedDocument(doc, sv)
+	// Groups of a log beside a strong mains line that leaks (acchecks.go).
+	leakyDocument(doc, sv)
 	// Build puts a misfit every group shares first; an alert that names a
 	// cause (spikes left in, a route fitted as one line) still leads.
 	doc.Warnings = alertsFirst(doc.Warnings, alerts)
@@ -2955,13 +3016,13 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration, walked 
 	depthCol := doc.DepthReference.Kind != report.DepthBelowGround
 	switch {
 	case !coverKnown:
-		fmt.Fprintf(w, "depths are %s; currents %s, one-sigma uncertainties\n", ref, map[bool]string{true: "RMS with phase angle (∠, " + report.PhaseAngleWords + ")", false: "DC"}[doc.Signal.Mode == report.SignalAC])
+		fmt.Fprintf(w, "depths are %s; currents %s, one-sigma uncertainties\n", ref, map[bool]string{true: "RMS with phase angle (∠, " + report.PhaseWords(doc.Signal) + ")", false: "DC"}[doc.Signal.Mode == report.SignalAC])
 		fmt.Fprintln(w, report.NoCoverSentence)
 	case depthCol:
 		fmt.Fprintf(w, "cover is the depth below the ground: the depth %s less the sensors' %.2f m height above the ground; currents %s, one-sigma uncertainties\n",
-			ref, doc.DepthReference.SensorHeight, map[bool]string{true: "RMS with phase angle (∠, " + report.PhaseAngleWords + ")", false: "DC"}[doc.Signal.Mode == report.SignalAC])
+			ref, doc.DepthReference.SensorHeight, map[bool]string{true: "RMS with phase angle (∠, " + report.PhaseWords(doc.Signal) + ")", false: "DC"}[doc.Signal.Mode == report.SignalAC])
 	default:
-		fmt.Fprintf(w, "cover is the depth %s; currents %s, one-sigma uncertainties\n", ref, map[bool]string{true: "RMS with phase angle (∠, " + report.PhaseAngleWords + ")", false: "DC"}[doc.Signal.Mode == report.SignalAC])
+		fmt.Fprintf(w, "cover is the depth %s; currents %s, one-sigma uncertainties\n", ref, map[bool]string{true: "RMS with phase angle (∠, " + report.PhaseWords(doc.Signal) + ")", false: "DC"}[doc.Signal.Mode == report.SignalAC])
 	}
 	if robustGroups(doc) > 0 {
 		// The sigmas of Huber-weighted fits are large-sample ones (the
