@@ -878,6 +878,23 @@ func circuitOf(f *Fit, ac bool) (p *inverse.PairEstimate, strict, usable bool) {
 	return p, math.Abs(p.NetCurrent) <= 0.5*math.Max(math.Abs(s0.Current), math.Abs(o.Current)), true
 }
 
+// returnShareClause words, for a further AC conductor carrying current
+// back beside conductor 1 (its phase within 90° of anti-phase,
+// trackReturn), the share of conductor 1's current it returns and the net
+// current the two leave to return by other paths; "" otherwise. The
+// go-and-return wording of circuitOf covers only a pair within its depth
+// of each other; a return farther off (a water main 2 m from a service
+// cable carrying a tracer's earth return) was given only its phase from
+// conductor 1 (found in review), while a tracer user needs how much comes
+// back along it and how much goes to remote earth.
+func returnShareClause(t *Track) string {
+	if t.ReturnShare == nil || t.ReturnShareSigma == nil || t.NetToEarthA == nil || t.NetToEarthSigmaA == nil {
+		return ""
+	}
+	return fmt.Sprintf("; it carries back %s%% of conductor 1's current (its current times the cosine of its angle from anti-phase, over conductor 1's), and the two together leave a net %s A (their phasor sum) that returns by other paths, such as remote earth or conductors outside the survey",
+		pm(100**t.ReturnShare, 100**t.ReturnShareSigma), pm(*t.NetToEarthA, *t.NetToEarthSigmaA))
+}
+
 // circuitPartner is the index of the line that the route's conductor of
 // fit f is paired with when the route follows a go-and-return pair
 // (circuitOf), or -1.

@@ -664,6 +664,18 @@ type Track struct {
 	// (trackPhase). Nil for DC or when no group has both phases.
 	PhaseFromConductor1      *float64 `json:"phase_from_conductor_1_deg,omitempty"`
 	PhaseFromConductor1Sigma *float64 `json:"phase_from_conductor_1_sigma_deg,omitempty"`
+	// ReturnShare is, for an AC conductor whose phase from conductor 1
+	// lies within 90° of anti-phase (a return path), the share of
+	// conductor 1's current it carries back, |I| cos(its angle from
+	// anti-phase) / |I1|, and NetToEarthA the net current the two carry
+	// between them, the magnitude of their phasor sum, A: what returns by
+	// other paths (remote earth, conductors outside the survey). Each with
+	// its one-sigma, weighted means over the groups trackPhase uses
+	// (trackReturn). Nil otherwise.
+	ReturnShare      *float64 `json:"return_share,omitempty"`
+	ReturnShareSigma *float64 `json:"return_share_sigma,omitempty"`
+	NetToEarthA      *float64 `json:"net_to_earth_a,omitempty"`
+	NetToEarthSigmaA *float64 `json:"net_to_earth_sigma_a,omitempty"`
 }
 
 // Crossing is how a further conductor runs at an angle to conductor 1.

@@ -1670,7 +1670,7 @@ func trackHeadline(d *Document, t *Track) string {
 		case -1:
 			line += ", flowing the same way as conductor 1"
 		}
-		line += trackPhaseClause(t)
+		line += trackPhaseClause(t) + returnShareClause(t)
 		lo, hi := used[0].Depth, used[0].Depth
 		for _, s := range used {
 			lo, hi = math.Min(lo, s.Depth), math.Max(hi, s.Depth)

@@ -698,9 +698,12 @@ type group struct {
 	times   []float64       // AC: each window's centre time, s
 	ramp    *groupRamp      // AC: the phase ramp fitted (phaseramp.go); nil for none
 	res0    *inverse.Result // AC: with a ramp, the fit without one
-	windowN []float64       // AC: each window's sample count
-	wsigma  []float64       // AC: the windows' noise per axis (calibrate.Window.Sigma), nT
-	hint    float64         // AC: the offset of the group's own frequency, Hz, where the ramp search starts; 0 for none
+	// chirp is (AC) the drift of the field's frequency, Hz/s, followed
+	// within the group about its middle (followDrift); 0 for none.
+	chirp   float64
+	windowN []float64 // AC: each window's sample count
+	wsigma  []float64 // AC: the windows' noise per axis (calibrate.Window.Sigma), nT
+	hint    float64   // AC: the offset of the group's own frequency, Hz, where the ramp search starts; 0 for none
 	// estimated is set (AC) when the group was demodulated at a frequency
 	// estimated from the log, not the one given: off by about the
 	// estimate's sigma, so the ramp is always searched for (fitRamp).
@@ -727,7 +730,10 @@ func (g *group) problem(ac bool, noise float64) *inverse.Problem {
 		// it: the fit models that path average, not the field at its centre.
 		p.Phasors, p.Travel = g.phasors, g.half
 		if g.ramp != nil {
-			p.Phasors = turned(g.phasors, g.times, g.ramp.hz, g.ramp.mid)
+			p.Phasors = turned(g.phasors, g.times, g.ramp.hz, g.chirp, g.ramp.mid)
+		} else if g.chirp != 0 && len(g.times) > 0 {
+			mid, _ := timesMidSpan(g.times)
+			p.Phasors = turned(g.phasors, g.times, 0, g.chirp, mid)
 		}
 	} else {
 		p.Fields, p.Scale = g.fields, g.scale
@@ -752,6 +758,9 @@ type looseLog struct {
 }
 
 type survey struct {
+	// drifts are the steady drifts of the AC frequency followed in the
+	// groups' fits (followDrift).
+	drifts    []driftLaw
 	looseLogs []looseLog
 	// unchecked holds the AC logs whose frequency check could not decide
 	// (wrongfreq.go).
@@ -2476,6 +2485,10 @@ feed:
 		dropMisfitRamps(sv.groups)
 		dropLoneRamps(sv.groups)
 		dropWalkRamps(sv.groups)
+		followDrift(sv, set, func(g *group) float64 { return sv.groupNoise(g, o.noise) }, workers)
+		if len(sv.drifts) > 0 {
+			dropMisfitRamps(sv.groups)
+		}
 		for _, g := range sv.groups {
 			looseTurnBound(g)
 		}
@@ -2531,7 +2544,11 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 	} else if w := curvedDriftWarning(o, sv); w != "" {
 		head.Warnings = append(head.Warnings, w)
 	}
-	if w := wanderWarning(sv); w != "" {
+	w := wanderWarning(sv)
+	if d := driftFollowedWarning(sv); d != "" {
+		w = d
+	}
+	if w != "" {
 		// The fits told the frequency's offset from the walk's: the
 		// warning that a log walked one way could not is moot.
 		kept := head.Warnings[:0:0]
