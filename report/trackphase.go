@@ -48,20 +48,9 @@ func trackPhase(d *Document, t *Track) (phase, sigma float64, n int, ok bool) {
 		if !(sg > 0) || math.IsInf(sg, 0) {
 			continue
 		}
-		cos := s.Direction[0]*m.Direction[0] + s.Direction[1]*m.Direction[1]
-		if math.Abs(cos) < crossPhaseCos {
+		a, b, ok := alongPhases(s, m)
+		if !ok {
 			continue
-		}
-		a := *s.Phase
-		if s.Current < 0 {
-			a += 180
-		}
-		if cos < 0 {
-			a += 180
-		}
-		b := *m.Phase
-		if m.Current < 0 {
-			b += 180
 		}
 		diff := wrapDeg(a - b)
 		if len(diffs) > 0 {
@@ -149,20 +138,9 @@ func trackReturn(d *Document, t *Track) (share, shareSigma, net, netSigma float6
 		if !s.Used || !found || s.Phase == nil || s.PhaseSigma == nil {
 			continue
 		}
-		cos := s.Direction[0]*m.Direction[0] + s.Direction[1]*m.Direction[1]
-		if math.Abs(cos) < crossPhaseCos {
+		a, b, ok := alongPhases(s, m)
+		if !ok {
 			continue
-		}
-		a := *s.Phase
-		if s.Current < 0 {
-			a += 180
-		}
-		if cos < 0 {
-			a += 180
-		}
-		b := *m.Phase
-		if m.Current < 0 {
-			b += 180
 		}
 		i1, i2 := math.Abs(m.Current), math.Abs(s.Current)
 		if !(i1 > 0) {
@@ -263,4 +241,26 @@ func trackPhaseClause(t *Track) string {
 		return ""
 	}
 	return fmt.Sprintf(", its phase %s° from conductor 1's (both read along conductor 1's direction)", pm(*t.PhaseFromConductor1, *t.PhaseFromConductor1Sigma))
+}
+
+// alongPhases gives the phases of station s and of conductor 1's station m
+// at one place, each read along m's direction with its current's sign
+// taken in; ok is false when the two lines cross too steeply to compare.
+func alongPhases(s, m Station) (a, b float64, ok bool) {
+	cos := s.Direction[0]*m.Direction[0] + s.Direction[1]*m.Direction[1]
+	if math.Abs(cos) < crossPhaseCos {
+		return 0, 0, false
+	}
+	a = *s.Phase
+	if s.Current < 0 {
+		a += 180
+	}
+	if cos < 0 {
+		a += 180
+	}
+	b = *m.Phase
+	if m.Current < 0 {
+		b += 180
+	}
+	return a, b, true
 }
