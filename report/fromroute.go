@@ -51,6 +51,23 @@ func (d *Document) SetRoute(r *route.Route) {
 			s.Notes = append(s.Notes, fmt.Sprintf("dip, depth and current sigmas widened for a bend nearby: the fitted dip %s deg departs from the slope of the neighbouring stations' depths, %s deg (the fit's own sigmas: dip %s deg, depth %s m, current %s A)",
 				PlusMinus(bd.FitDip, bd.FitDipSigma), PlusMinus(bd.RouteDip, bd.RouteDipSigma), route.SigmaText(bd.FitDipSigma), route.SigmaText(bd.FitDepthSigma), route.SigmaText(bd.FitCurrentSigma)))
 		}
+		// A misfit well over the noise, or a current step nearby: the
+		// model's error the route counts in the station's sigmas
+		// (route.ModelDoubt, route.StepNear), in the group's results too.
+		if p := &r.Stations[k]; (p.Model != nil || p.StepNear != nil) && len(g.Sources) > 0 && g.Sources[0].Kind == KindLine {
+			s := &g.Sources[0]
+			if md := p.Model; md != nil {
+				s.CurrentSigma, s.DepthSigma = md.Widen(s.CurrentSigma, s.Current), md.Widen(s.DepthSigma, s.Depth)
+				s.DipSigma *= md.Birge
+				s.OffsetSigma *= md.Birge
+				s.AzimuthSigma *= md.Birge
+				s.Notes = append(s.Notes, route.ModelNote(md))
+			}
+			if sn := p.StepNear; sn != nil {
+				s.CurrentSigma, s.DepthSigma = sn.Widen(s.CurrentSigma, s.Current), sn.Widen(s.DepthSigma, s.Depth)
+				s.Notes = append(s.Notes, route.StepNote(sn))
+			}
+		}
 		// Turn the group's conductors along the route too, so that the
 		// document reads the same way everywhere.
 		t := r.Stations[k].Dir

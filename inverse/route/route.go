@@ -63,6 +63,12 @@ type Placed struct {
 	// of its neighbours' depths (bend.go): DipSigma, DepthSigma and
 	// CurrentSigma are then widened, and Bend keeps the fit's own.
 	Bend *BendDoubt
+	// Model is set when the station's fit misses its readings by more
+	// than ModelChi2 (modelerr.go), StepNear when a current step lies near
+	// it: CurrentSigma and DepthSigma (and for Model DipSigma) are then
+	// widened, and each keeps the sigmas before it.
+	Model    *ModelDoubt
+	StepNear *StepNear
 }
 
 // Route is the result of Build.
@@ -191,6 +197,10 @@ func Build(stations []Station, set *Settings) (*Route, error) {
 	// A station whose fitted dip departs from the slope of its
 	// neighbours' depths: a bend nearby tilts its line (bend.go).
 	r.Findings = append(r.Findings, bendDoubt(r.Stations, set)...)
+	// The error a fit's misfit shows, and a step's field nearby, which
+	// the fit's sigmas do not count (modelerr.go).
+	modelDoubt(r.Stations)
+	stepDoubt(r.Stations, st)
 	r.Findings = append(r.Findings, cover(r.Stations, set)...)
 	for _, f := range quality(r.Stations, set, st) {
 		if f.Kind == KindPoorFit && len(f.Keys) == 1 && notes[f.Keys[0]] != "" {
