@@ -21,7 +21,7 @@ const poorWidening = 5.7
 // relSame; but every station is published with its fit's own sigmas, the
 // caller's, exactly (widened for its misfit or the step beside it when
 // modelDoubt or stepDoubt widens them, from the caller's), and the
-// shallow-cover finding quotes those. Before,
+// shallow-cover finding, made before that widening, quotes the fit's own. Before,
 // Route.Stations gave the poor fits' current, depth and phase sigmas
 // divided by the factor, and the report published them as the stations'
 // (a least cover of 1.0814 ± 0.0016 m where the fit, and the report's
@@ -111,13 +111,7 @@ func TestPoorWidenedStationPublishedAsFitted(t *testing.T) {
 				low = &wide[i]
 			}
 		}
-		var lp *Placed
-		for i := range r.Stations {
-			if r.Stations[i].Key == low.Key {
-				lp = &r.Stations[i]
-			}
-		}
-		if low.Widening <= 1 || lp == nil || lp.Model == nil || c.Sigma != lp.DepthSigma || !(c.Sigma > low.DepthSigma) {
+		if low.Widening <= 1 || c.Sigma != low.DepthSigma {
 			t.Errorf("seed %d: shallow cover quoted ± %g m, its station's fit ± %g m", seed, c.Sigma, low.DepthSigma)
 		}
 	}

@@ -197,11 +197,15 @@ func Build(stations []Station, set *Settings) (*Route, error) {
 	// A station whose fitted dip departs from the slope of its
 	// neighbours' depths: a bend nearby tilts its line (bend.go).
 	r.Findings = append(r.Findings, bendDoubt(r.Stations, set)...)
+	r.Findings = append(r.Findings, cover(r.Stations, set)...)
 	// The error a fit's misfit shows, and a step's field nearby, which
-	// the fit's sigmas do not count (modelerr.go).
+	// the fit's sigmas do not count (modelerr.go). After the cover check:
+	// a poor fit's cover finding says its cover may be the misfit's, and
+	// its shallow-cover verdict keeps the fit's own sigma (widened, a
+	// 1.09 m cover over a conductor 1.3 m down, beside a stronger
+	// crossing, read "may be less than the 0.90 m minimum").
 	modelDoubt(r.Stations)
 	stepDoubt(r.Stations, st)
-	r.Findings = append(r.Findings, cover(r.Stations, set)...)
 	for _, f := range quality(r.Stations, set, st) {
 		if f.Kind == KindPoorFit && len(f.Keys) == 1 && notes[f.Keys[0]] != "" {
 			f.Message += notes[f.Keys[0]]
