@@ -603,6 +603,11 @@ func (r *arrowReader) convert(rec arrow.RecordBatch) (arrow.RecordBatch, error) 
 			return nil, err
 		}
 	}
+	if i, col, msg := pl.checkLatLon(rb); i >= 0 {
+		e := rowErr(r.name, r.batch, i, col, "", "%s", msg)
+		e.FileRow = r.start + int64(i)
+		return nil, e
+	}
 	pl.transform(rb)
 	if rb.noFix > 0 {
 		at := make([]string, len(rb.noFixRow))

@@ -3,6 +3,7 @@ package ingest
 import (
 	"fmt"
 	"math"
+	"sort"
 	"time"
 )
 
@@ -139,4 +140,62 @@ func (p *plan) noteClockChange(t []float64, name string) {
 		}
 		p.clockLast = v
 	}
+}
+
+// ClockChangeForward words the first step within a group (g, nil: one
+// group) of times t, in file order, that looks like the hour skipped when
+// the clocks go forward, local times being read with one fixed offset (or
+// none): a step of an hour give or take one sample interval (the median
+// step of the group's readings) while the position (x, y) moved by about
+// one sample spacing (at most three times the median), in February to
+// April or September to November (the months of every such change; see
+// ClockChangeBack). Read so, the readings after the change are an hour
+// late, and a base correction pairs them with base readings of an hour
+// later. "" when there is none.
+func ClockChangeForward(t, x, y []float64, g []string) string {
+	n := len(t)
+	if n < 3 || len(x) != n || len(y) != n {
+		return ""
+	}
+	same := func(i int) bool { return g == nil || g[i] == g[i-1] }
+	var dt, ds []float64
+	for i := 1; i < n; i++ {
+		if !same(i) {
+			continue
+		}
+		if d := t[i] - t[i-1]; d > 0 && d < 3000 {
+			dt = append(dt, d)
+			ds = append(ds, math.Hypot(x[i]-x[i-1], y[i]-y[i-1]))
+		}
+	}
+	if len(dt) < 2 {
+		return ""
+	}
+	sort.Float64s(dt)
+	sort.Float64s(ds)
+	iv, sp := dt[len(dt)/2], ds[len(ds)/2]
+	for i := 1; i < n; i++ {
+		d := t[i] - t[i-1]
+		if !same(i) || math.Abs(d-3600) > iv || math.IsNaN(d) {
+			continue
+		}
+		if move := math.Hypot(x[i]-x[i-1], y[i]-y[i-1]); !(move <= 3*sp+1e-9) {
+			continue
+		}
+		switch time.Unix(int64(t[i]), 0).UTC().Month() {
+		case time.February, time.March, time.April, time.September, time.October, time.November:
+		default:
+			continue
+		}
+		f := func(v float64) string {
+			return time.Unix(0, int64(math.Round(v*1e3))*1e6).UTC().Format("2006-01-02T15:04:05.999")
+		}
+		where := ""
+		if g != nil {
+			where = fmt.Sprintf(" in group %q", g[i])
+		}
+		return fmt.Sprintf("time steps forward from %s to %s%s, %s, an hour give or take the time between the readings, while the sensor moved only %.3g m (about one reading's spacing, %.3g m): local times written without their UTC offset across the night the clocks went forward an hour? Read with one offset (or none), the readings after the change are an hour late, and a base correction pairs them with base readings an hour off; write each time with its offset (standard time's before the change, summer time's after it)",
+			f(t[i-1]), f(t[i]), where, durationText(d), math.Hypot(x[i]-x[i-1], y[i]-y[i-1]), sp)
+	}
+	return ""
 }

@@ -72,6 +72,12 @@ type csvReader struct {
 	// message of a step back from it).
 	lastText string
 	lastLine int
+	// cp1252 says the file is read as Windows-1252 (see charset.go):
+	// its head, header or comment lines are not valid UTF-8. cpLine is
+	// the first line found with a byte that is not UTF-8 (0: none yet),
+	// warned of once.
+	cp1252 bool
+	cpLine int
 }
 
 const (
@@ -113,6 +119,7 @@ type csvResult struct {
 	noFix   int
 	noFixAt []string
 	nulLine int // first line of NUL bytes alone, skipped; 0 if none
+	badText int // first line of a text value that is not UTF-8; 0 if none
 }
 
 func (r *csvReader) plan() *plan                    { return r.pl }
@@ -132,6 +139,14 @@ func newCSVReader(name string, rd io.Reader, cfg *config) (*csvReader, error) {
 		br = bufio.NewReaderSize(crLines{br}, 64<<10)
 	}
 	r := &csvReader{name: name, closer: closer, cfg: cfg, br: br, last: math.NaN()}
+	// The file's encoding is judged once, on its head as far as the
+	// reader has it (at least 4 KiB): a byte that is not UTF-8 there
+	// makes the whole file Windows-1252.
+	_, perr := br.Peek(4096)
+	head, _ := br.Peek(br.Buffered())
+	if i := firstNonUTF8(head, perr != nil); i >= 0 {
+		r.cp1252, r.cpLine = true, lineOf(head, i, 1)
+	}
 	meta := map[string]string{}
 	lineNo := 0
 	var raw []byte   // the physical line that starts the header record
@@ -174,9 +189,12 @@ func newCSVReader(name string, rd io.Reader, cfg *config) (*csvReader, error) {
 			continue
 		}
 		if cfg.comment != "" && bytes.HasPrefix(bytes.TrimSpace(ln), []byte(cfg.comment)) {
-			text := strings.TrimSpace(strings.TrimPrefix(strings.TrimSpace(string(ln)), cfg.comment))
+			text := strings.TrimSpace(strings.TrimPrefix(strings.TrimSpace(r.headText(ln, lineNo)), cfg.comment))
 			if k, v, ok := strings.Cut(text, ":"); ok && strings.HasPrefix(k, "undercurrent.") && !strings.ContainsAny(k, " \t") {
 				meta[k] = strings.TrimSpace(v)
+				if err := originLineErr(name, lineNo, k, meta[k]); err != nil {
+					return nil, err
+				}
 			}
 			continue
 		}
@@ -212,8 +230,13 @@ func newCSVReader(name string, rd io.Reader, cfg *config) (*csvReader, error) {
 	if cfg.header != nil {
 		header = cfg.header
 	} else {
+		if !r.cp1252 {
+			if i := firstNonUTF8(raw, true); i >= 0 {
+				r.cp1252, r.cpLine = true, lineOf(raw, i, headerStart)
+			}
+		}
 		for _, f := range splitFields(headerLine, r.delim, r.ws, nil) {
-			header = append(header, headerName(f))
+			header = append(header, headerName(f, r.cp1252))
 		}
 	}
 	r.ncols = len(header)
@@ -229,6 +252,9 @@ func newCSVReader(name string, rd io.Reader, cfg *config) (*csvReader, error) {
 		return nil, err
 	}
 	r.pl = pl
+	if r.cpLine > 0 {
+		pl.warn("%s", cp1252Warning(name, r.cpLine))
+	}
 	for c := 0; c < nCanon; c++ {
 		if pl.src[c] >= 0 {
 			r.used = append(r.used, usedCol{c: c, src: pl.src[c], scale: pl.scale[c]})
@@ -250,11 +276,14 @@ func newCSVReader(name string, rd io.Reader, cfg *config) (*csvReader, error) {
 	if r.decComma && r.delim == ',' && !r.ws {
 		return nil, fileErr(name, nil, "decimal commas need a delimiter other than the comma (in a comma-delimited file they are not read, quoted or not): save the file again with ';' as the delimiter, or with decimal points")
 	}
+	if err := r.checkDigitGrouping(lineNo + 1 + bytes.Count(carry, []byte{'\n'})); err != nil {
+		return nil, err
+	}
 	if r.decComma {
 		pl.meta["decimal_separator"] = ","
 		pl.buildSchema()
 	}
-	r.fast = !r.ws && r.delim != '"' && !cfg.slowOnly && !r.decComma
+	r.fast = !r.ws && r.delim != '"' && !cfg.slowOnly && !r.decComma && pl.timeJoin < 0
 	startLine := lineNo + 1
 	if pl.geodetic && pl.origin == nil {
 		// The origin is the first reading: parse ahead to it. A reading at
@@ -509,21 +538,29 @@ func (r *csvReader) openQuoteErr(rec []byte, open, line int, atEOF bool) *Error 
 	return lineErr(r.name, line, col, text, "unterminated quote: the quoted field%s starting %s is not closed %s", where, quoteText(text), why)
 }
 
+// headText returns a comment line of the head (line lineNo) as UTF-8
+// text; a line that is not valid UTF-8 makes the file Windows-1252 (when
+// the head read ahead did not already).
+func (r *csvReader) headText(ln []byte, lineNo int) string {
+	if !r.cp1252 {
+		if i := firstNonUTF8(ln, true); i >= 0 {
+			r.cp1252, r.cpLine = true, lineNo
+		}
+	}
+	s, _ := textValue(ln, r.cp1252)
+	return s
+}
+
 // headerName turns a header field into a column name: blanks trimmed,
 // quotes removed, and a line break inside a quoted name (a spreadsheet's
 // wrapped "Bx\n(nT)") read as one space. A name that is not valid UTF-8
-// is read as Latin-1 (ISO 8859-1), as older spreadsheets save "Bx (µT)",
-// so that its unit is recognised and a mapping can name it.
-func headerName(f []byte) string {
+// of a file read as Windows-1252 (cp, see charset.go) is read so, as
+// older spreadsheets save "Bx (µT)" or "Profil–Name", so that its unit is
+// recognised and a mapping can name it.
+func headerName(f []byte, cp bool) string {
 	f = unquote(f)
-	if !utf8.Valid(f) {
-		r := make([]rune, len(f))
-		for i, b := range f {
-			r[i] = rune(b)
-		}
-		f = []byte(string(r))
-	}
-	s := strings.TrimSpace(string(f))
+	s, _ := textValue(f, cp)
+	s = strings.TrimSpace(s)
 	if strings.ContainsAny(s, "\r\n") {
 		s = strings.Join(strings.Fields(strings.NewReplacer("\r", " ", "\n", " ").Replace(s)), " ")
 	}
@@ -748,7 +785,8 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch, plain bool) 
 	pl, cfg := r.pl, r.cfg
 	comment := []byte(cfg.comment)
 	var fields [][]byte
-	var num []byte // a decimal-comma number rewritten with a point
+	var num []byte    // a decimal-comma number rewritten with a point
+	var joined []byte // a date and a time of day joined (time=DATE+TIME)
 	need := rb.n + bytes.Count(data, []byte{'\n'}) + 1
 	for _, u := range r.used {
 		if u.c != cGroup {
@@ -851,12 +889,24 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch, plain bool) 
 		for _, u := range r.used {
 			t := trimField(fields[u.src])
 			if u.c == cGroup {
-				rb.group = append(rb.group, string(t))
+				s, bad := textValue(t, r.cp1252)
+				if bad && rb.badText == 0 {
+					rb.badText = line
+				}
+				rb.group = append(rb.group, s)
 				continue
 			}
 			// Blanks inside quotes around a number are blanks as outside
 			// them (and as the Arrow text path trims them): " 150 " is 150.
 			t = bytes.Trim(t, " \t")
+			if u.c == cTime && pl.timeJoin >= 0 && pl.timeJoin < len(fields) {
+				if clock := bytes.Trim(trimField(fields[pl.timeJoin]), " \t"); len(t) > 0 && len(clock) > 0 {
+					joined = append(append(append(joined[:0], t...), ' '), clock...)
+					t = joined
+				} else {
+					t = nil // half a time is a missing one
+				}
+			}
 			var v float64
 			var ok bool
 			var badDate string
@@ -898,6 +948,8 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch, plain bool) 
 					case hint != "":
 						// A time of day or a local date: its comma or
 						// points are not a number's.
+					case groupingHint(t, r.decComma) != "":
+						what += groupingHint(t, r.decComma)
 					case r.decComma && bytes.IndexByte(t, '.') >= 0:
 						// Only a point the setting rejects: "+0200" or a
 						// word held none, and the hint sent the user
@@ -996,6 +1048,9 @@ func (r *csvReader) fastLine(ln []byte, rb *rawBatch) bool {
 				if len(f) > 0 && (f[0] == '"' || f[0] == ' ' || f[0] == '\t' || f[len(f)-1] == ' ' || f[len(f)-1] == '\t') {
 					return false
 				}
+				if !r.cp1252 && hasHigh(f) && !utf8.Valid(f) {
+					return false // the general path notes its line
+				}
 				group, hasGroup = f, true
 			}
 			p = end + 1
@@ -1012,7 +1067,8 @@ func (r *csvReader) fastLine(ln []byte, rb *rawBatch) bool {
 		return false // long row, or a trailing delimiter the general path judges
 	}
 	if hasGroup {
-		rb.group = append(rb.group, string(group))
+		s, _ := textValue(group, r.cp1252)
+		rb.group = append(rb.group, s)
 	}
 	return true
 }
@@ -1168,7 +1224,7 @@ func (r *csvReader) parseJob(j csvJob, rb *rawBatch) csvResult {
 	rb.reset(pl)
 	err := r.parseChunk(j.data, j.line, rb, j.plain)
 	if err != nil || rb.n == 0 {
-		res := csvResult{err: err, firstTime: math.NaN(), lastTime: math.NaN(), nulLine: rb.nulLine}
+		res := csvResult{err: err, firstTime: math.NaN(), lastTime: math.NaN(), nulLine: rb.nulLine, badText: rb.badText}
 		if err != nil && r.pl.orderAll {
 			// A step back in time on a row before the bad one comes
 			// first in the file, whatever the chunking: report that.
@@ -1181,13 +1237,20 @@ func (r *csvReader) parseJob(j csvJob, rb *rawBatch) csvResult {
 		}
 		return res
 	}
+	if i, col, msg := pl.checkLatLon(rb); i >= 0 {
+		line := 0
+		if i < len(rb.line) {
+			line = rb.line[i]
+		}
+		return csvResult{err: lineErr(r.name, line, col, "", "%s", msg), firstTime: math.NaN(), lastTime: math.NaN()}
+	}
 	pl.transform(rb)
 	var noFixAt []string
 	for _, ln := range rb.noFixLine {
 		noFixAt = append(noFixAt, fmt.Sprintf("%s:%d", r.name, ln))
 	}
 	if rb.n == 0 { // every reading without a fix
-		return csvResult{firstTime: math.NaN(), lastTime: math.NaN(), nulLine: rb.nulLine, noFix: rb.noFix, noFixAt: noFixAt}
+		return csvResult{firstTime: math.NaN(), lastTime: math.NaN(), nulLine: rb.nulLine, badText: rb.badText, noFix: rb.noFix, noFixAt: noFixAt}
 	}
 	t := rb.f[cTime]
 	if r.pl.orderAll {
@@ -1195,7 +1258,7 @@ func (r *csvReader) parseJob(j csvJob, rb *rawBatch) csvResult {
 			return csvResult{err: r.chunkBackwards(j, rb, i)}
 		}
 	}
-	res := csvResult{rec: pl.record(r.cfg.mem, rb), lastTime: lastTime(t, math.NaN()), naiveLine: rb.naiveLine, naiveText: rb.naiveText, nulLine: rb.nulLine, noFix: rb.noFix, noFixAt: noFixAt}
+	res := csvResult{rec: pl.record(r.cfg.mem, rb), lastTime: lastTime(t, math.NaN()), naiveLine: rb.naiveLine, naiveText: rb.naiveText, nulLine: rb.nulLine, badText: rb.badText, noFix: rb.noFix, noFixAt: noFixAt}
 	if pl.orderGroup {
 		res.lines = append([]int(nil), rb.line[:rb.n]...)
 	}
@@ -1342,6 +1405,12 @@ func (r *csvReader) Next() bool {
 			return false
 		}
 		res := <-ch
+		if res.badText > 0 && r.cpLine == 0 {
+			// A file whose head is UTF-8 with a text value further on
+			// that is not: that value is read as Windows-1252.
+			r.cpLine = res.badText
+			r.pl.warn("%s", cp1252Warning(r.name, r.cpLine))
+		}
 		if res.nulLine > 0 && r.nulLine == 0 {
 			r.nulLine = res.nulLine
 		}

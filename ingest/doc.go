@@ -32,7 +32,11 @@
 // CSV as spreadsheets export it is read as well: a UTF-8 byte order mark,
 // CRLF or bare CR line ends, a first line "sep=;" naming the delimiter,
 // decimal commas, rows of delimiters alone (the empty rows below a table,
-// skipped like blank lines) and header names saved in Latin-1 ("Bx (µT)").
+// skipped like blank lines) and files saved in Windows-1252 or Latin-1:
+// a file that is not valid UTF-8 is read as Windows-1252, header names,
+// text values and comment lines alike, with a warning ("Bx (µT)",
+// "Profil–Name", traverses "Öl" and "Äl"). Header names and mapped names
+// are compared in Unicode form NFC.
 // Lines of nothing but NUL bytes (the unwritten end of a logger's
 // preallocated file, however long) are skipped with a warning.
 // UTF-16 text is refused, with a request for UTF-8. Arrow and Parquet

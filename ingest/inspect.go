@@ -114,6 +114,9 @@ func Inspect(path string, opts ...Option) (*Inspection, error) {
 			used[pl.src[c]] = true
 		}
 	}
+	if pl.timeJoin >= 0 {
+		used[pl.timeJoin] = true
+	}
 	for i, h := range pl.header {
 		if !used[i] {
 			in.Unused = append(in.Unused, h)
@@ -284,6 +287,9 @@ func Inspect(path string, opts ...Option) (*Inspection, error) {
 					ts.Interval = tq.Interval
 					gap = max(GapFactor*ts.Interval, tq.Steps[1]+0.5*tq.Quantum)
 				}
+			} else if _, w := CoarseStamps(times); w != "" {
+				// Stamps to the minute: too few steps for RetimeQuantised.
+				in.Warnings = append(in.Warnings, path+": "+w)
 			}
 			ts.Rate = 1 / ts.Interval
 			list := append([]Gap(nil), (*gaps)...)

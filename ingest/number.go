@@ -228,6 +228,18 @@ func parseTimestampIn(b []byte, loc *time.Location) (v float64, zoned, ok bool) 
 // given and bad why the value is no real date in it (timeText.parse).
 // "" when it looks like neither.
 func timeHint(b []byte, order DateOrder, bad string) string {
+	if w, rest := zoneWord(b); w != "" {
+		if w == "UTC" || w == "Z" {
+			return timeHint(rest, order, bad)
+		}
+		h := " (" + strconv.Quote(w) + " after the time is a time-zone word, which is not read: export the times without it and give the zone's offset from UTC with --time-offset, as --time-offset +01:00 for MEZ or CET, +02:00 for MESZ or CEST; or write times with their offset, as in 2026-04-21T08:40:00+01:00"
+		if order == DateOrderNone {
+			if _, _, _, ok := localDate(rest); ok {
+				h += "; the date also needs its order, with --date-order dmy, mdy or ymd"
+			}
+		}
+		return h + ")"
+	}
 	clock := func(b []byte) bool { // h:mm, hh:mm:ss, hh:mm:ss.fff
 		n := 0
 		for _, part := range bytes.Split(b, []byte(":")) {
@@ -244,7 +256,7 @@ func timeHint(b []byte, order DateOrder, bad string) string {
 		return n == 2 || n == 3
 	}
 	if clock(b) {
-		return " (a time of day without its date? time needs the date too: join a separate date column to it, as in 2026-04-21T08:40:00Z)"
+		return " (a time of day without its date? time needs the date too: join a separate date column to it: map time to both, DATE+TIME (on the command line --column time=DATE+TIME), or write times as in 2026-04-21T08:40:00Z)"
 	}
 	if parts, _, _, ok := localDate(b); ok {
 		if order != DateOrderNone {

@@ -13,6 +13,7 @@ import (
 	"github.com/apache/arrow-go/v18/arrow"
 	"github.com/apache/arrow-go/v18/arrow/array"
 	"github.com/apache/arrow-go/v18/arrow/memory"
+	"golang.org/x/text/unicode/norm"
 )
 
 // plan is how one input's columns become canonical columns.
@@ -74,6 +75,10 @@ type plan struct {
 	zeroNoFix bool
 	noFixRows int64
 	noFixAt   []string
+
+	// timeJoin is the time-of-day column joined after the date column
+	// src[cTime] with a space (a mapping time=DATE+TIME); -1 when none.
+	timeJoin int
 }
 
 // noFixKm is the least distance, km, of a latitude/longitude log's origin
@@ -217,7 +222,7 @@ func (p *plan) naiveTime(where, what string, typed bool) {
 		return
 	}
 	p.naiveWarned = true
-	fix := "write the offset into the times (2026-04-21T09:40:00+01:00)"
+	fix := "write the offset into the times (2026-04-21T09:40:00+01:00) or give it (WithTimeOffset, on the command line --time-offset +01:00)"
 	if typed {
 		fix = "store them as timestamps with a time zone"
 	}
@@ -377,6 +382,28 @@ func (p *plan) mappings() []ColumnMapping {
 // newPlan resolves the input's column names against the options.
 // headerLine is the line of a text file's header (0 when there is none),
 // for messages.
+// joinedTime finds the two columns of a time mapping DATE+TIME (spec),
+// trying each "+" in turn so that a name holding one still matches.
+func (p *plan) joinedTime(spec string, find func(string) int) (date, clock int, err error) {
+	for k := 0; k < len(spec); k++ {
+		if spec[k] != '+' {
+			continue
+		}
+		d, t := find(strings.TrimSpace(spec[:k])), find(strings.TrimSpace(spec[k+1:]))
+		if d < 0 || t < 0 {
+			continue
+		}
+		if p.format != string(FormatCSV) {
+			return 0, 0, fileErr(p.file, nil, "mapping time=%s: a date column and a time column are joined in CSV files only; give one time column (convert the log with the two joined, or export it as CSV)", spec)
+		}
+		if d == t {
+			return 0, 0, fileErr(p.file, nil, "mapping time=%s: the date and the time of day name the same column", spec)
+		}
+		return d, t, nil
+	}
+	return 0, 0, fileErr(p.file, nil, "mapping time=%s: no column %q, and no two columns DATE+TIME of that name to join (columns found: %s)", spec, spec, columnList(p.header))
+}
+
 func newPlan(file, format string, header []string, types []arrow.DataType, meta map[string]string, headerLine int, cfg *config) (*plan, error) {
 	p := &plan{file: file, format: format, header: header, schemaTypes: types, cfg: cfg, meta: map[string]string{}}
 	for i := range p.src {
@@ -404,6 +431,10 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 		case k == MetaOrigin:
 			var g Geodetic
 			if _, err := fmt.Sscanf(v, "%g %g %g", &g.Lat, &g.Lon, &g.H); err == nil {
+				if _, m := latLonProblem(g.Lat, g.Lon, originSwapFix); m != "" {
+					return nil, fileErr(file, nil, "its origin (metadata %s, in a CSV log the line \"# %s: %s\"): %s", MetaOrigin, MetaOrigin, v, m)
+				}
+				g = p.wrapOrigin(g, "metadata "+MetaOrigin)
 				p.origin = &g
 			}
 		case strings.HasPrefix(k, MetaPrefix):
@@ -419,21 +450,36 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 	}
 	p.inFrame = frame
 
+	// A mapping names a column exactly, else ignoring case and blanks;
+	// both compare names in Unicode form NFC (sameName).
 	find := func(name string) int {
 		for i, h := range header {
-			if h == name {
+			if sameName(h, name, false) {
 				return i
 			}
 		}
 		for i, h := range header {
-			if strings.EqualFold(strings.TrimSpace(h), name) {
+			if sameName(h, name, true) {
 				return i
 			}
 		}
 		return -1
 	}
+	p.timeJoin = -1
 	for c, name := range cfg.mapping {
 		i := find(name)
+		if i < 0 && c == cTime && strings.Contains(name, "+") {
+			// time=DATE+TIME: a date column and a time-of-day column,
+			// as European and Windows loggers write them, joined with a
+			// space before the time is parsed.
+			d, t, err := p.joinedTime(name, find)
+			if err != nil {
+				return nil, err
+			}
+			p.src[c], p.timeJoin = d, t
+			p.desc[c] = header[d] + "+" + header[t]
+			continue
+		}
 		if i < 0 {
 			return nil, fileErr(file, nil, "mapping %s=%s: no column %q (columns found: %s)", canonNames[c], name, name, columnList(header))
 		}
@@ -444,6 +490,9 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 		if i >= 0 {
 			taken[i] = true
 		}
+	}
+	if p.timeJoin >= 0 {
+		taken[p.timeJoin] = true
 	}
 	unitFromName := [nCanon]string{}
 	// Canonical names first, then aliases: a column named exactly x is
@@ -635,6 +684,10 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 		switch cfg.originMode {
 		case originFixed:
 			o := cfg.origin
+			if _, m := latLonProblem(o.Lat, o.Lon, "the origin is given latitude first"); m != "" {
+				return nil, fileErr(file, nil, "the origin given (WithOrigin, on the command line --origin): %s", m)
+			}
+			o = p.wrapOrigin(o, "the origin given")
 			p.origin = &o
 		default:
 			p.origin = nil // set from the first reading by the reader
@@ -781,7 +834,7 @@ func unitLikeWord(w string) bool {
 }
 
 var (
-	fieldUnitWord = regexp.MustCompile(`(?i)^((f|p|n|u|µ|μ|m|k|M|G)?(t|g|oe)|(femto|pico|nano|micro|milli|kilo|mega)?(teslas?|gauss|gammas?|oersteds?))$`)
+	fieldUnitWord = regexp.MustCompile(`(?i)^((f|p|n|u|µ|μ|m|k|M|G)?(t|g|oe)|(femto|pico|nano|micro|milli|kilo|mega)?(teslas?|gauss|gammas?|oersteds?)|(?-i:γ))$`)
 	// A number and a one-letter unit: "0.1 T", "1e-4T", "T x10", "10G".
 	numberUnit = regexp.MustCompile(`^([x×*/]\s*)?[-+]?([0-9]+([.,][0-9]*)?|[.,][0-9]+)([eE][-+]?[0-9]+)?\s*[*·×]?\s*[TtGgV]$|^[TtGgV]\s*[x×*/·]\s*[-+]?([0-9]+([.,][0-9]*)?|[.,][0-9]+)([eE][-+]?[0-9]+)?$`)
 	volts      = regexp.MustCompile(`^(m|u|µ|μ)V$`)
@@ -988,7 +1041,7 @@ func (p *plan) checkDuplicates(headerLine int) error {
 	if headerLine > 0 {
 		where = fmt.Sprintf(":%d", headerLine)
 	}
-	norm := func(h string) string { return strings.ToLower(strings.TrimSpace(h)) }
+	key := func(h string) string { return strings.ToLower(strings.TrimSpace(norm.NFC.String(h))) }
 	for c := 0; c < nCanon; c++ {
 		i := p.src[c]
 		if i < 0 {
@@ -1000,9 +1053,9 @@ func (p *plan) checkDuplicates(headerLine int) error {
 			if j == i {
 				continue
 			}
-			same := norm(h) == norm(name)
+			same := key(h) == key(name)
 			if exact {
-				same = h == name
+				same = sameName(h, name, false)
 			}
 			if !same {
 				continue
@@ -1027,7 +1080,7 @@ func (p *plan) checkDuplicates(headerLine int) error {
 		}
 		if p.auto[c] {
 			for j, h := range p.header {
-				if j == i || norm(h) == norm(name) {
+				if j == i || key(h) == key(name) {
 					continue
 				}
 				if c2, _, _, ok := p.autoName(h); ok && c2 == c && !p.uses(j) {
@@ -1039,7 +1092,7 @@ func (p *plan) checkDuplicates(headerLine int) error {
 	}
 	first := map[string]int{}
 	for j, h := range p.header {
-		k := norm(h)
+		k := key(h)
 		i, seen := first[k]
 		if !seen {
 			first[k] = j
@@ -1098,6 +1151,7 @@ func defaultUnit(k kind) string {
 // setOrigin fixes the ENU origin (when it comes from the data) and
 // rebuilds the schema metadata.
 func (p *plan) setOrigin(o Geodetic) {
+	o = p.wrapOrigin(o, "its first reading")
 	p.origin = &o
 	p.enu = o.frame()
 	p.zeroNoFix = greatCircleKm(Geodetic{}, o) > noFixKm
@@ -1156,6 +1210,7 @@ type rawBatch struct {
 	naiveLine int
 	naiveText string
 	nulLine   int // first line of NUL bytes alone, skipped (text formats)
+	badText   int // first line of a text value not UTF-8, read as Windows-1252 (CSV)
 	// noFix counts the readings left out at latitude 0, longitude 0
 	// (dropNoFix); noFixRow holds the rows of the first few in the batch
 	// as read, noFixLine their source lines (text formats).
@@ -1171,7 +1226,7 @@ func (rb *rawBatch) reset(p *plan) {
 	}
 	rb.group = rb.group[:0]
 	rb.line = rb.line[:0]
-	rb.naiveLine, rb.naiveText, rb.nulLine = 0, "", 0
+	rb.naiveLine, rb.naiveText, rb.nulLine, rb.badText = 0, "", 0, 0
 	rb.noFix, rb.noFixRow, rb.noFixLine = 0, rb.noFixRow[:0], rb.noFixLine[:0]
 }
 

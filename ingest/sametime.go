@@ -40,3 +40,49 @@ func oneTimeText(n int, first float64) string {
 	}
 	return fmt.Sprintf("every one of the %d rows has the same time (%s): was the time column rounded, as a spreadsheet saving it in its General format keeps six significant figures (Unix seconds such as 1778407200.064 become 1.77841E+09, in steps of 10000 s)? Save the times with all their digits (a number format with decimals)", n, when)
 }
+
+// CoarseStamps describes times written more coarsely than the readings
+// come: most rows share their time with the row before, and every time is
+// a whole minute (a spreadsheet's "dd.mm.yyyy hh:mm"), or a whole second
+// on a log of more than two readings a second. It returns the stamps' step
+// (60 or 1 s) and a warning, or 0 and "" for other times, for fewer than
+// ten rows with a finite time, and for times that are all one (OneTime).
+// Read as exact, such times put every reading up to the step early: what
+// pairs readings by time (a base station's correction) pairs them up to
+// that far off.
+func CoarseStamps(t []float64) (step float64, msg string) {
+	n, repeated, distinct := 0, 0, 0
+	prev := math.NaN()
+	minute, second := true, true
+	for _, v := range t {
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			continue
+		}
+		n++
+		if v == prev {
+			repeated++
+		} else {
+			distinct++
+		}
+		prev = v
+		minute = minute && v == 60*math.Round(v/60)
+		second = second && v == math.Round(v)
+	}
+	if n < 10 || distinct < 2 || 2*repeated <= n {
+		return 0, ""
+	}
+	switch {
+	case minute:
+		step = 60
+	case second:
+		step = 1
+	default:
+		return 0, ""
+	}
+	unit := "minute"
+	if step == 1 {
+		unit = "second"
+	}
+	return step, fmt.Sprintf("most readings share their time with the reading before (%.3g readings a time on average), and every time is a whole %s: the times were written to the %s (%g s steps), coarser than the readings come, so each reading's time may be up to %g s off; write the times with seconds and their fractions (in a spreadsheet, a format such as hh:mm:ss,000)",
+		float64(n)/float64(distinct), unit, unit, step, step)
+}

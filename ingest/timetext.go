@@ -192,11 +192,44 @@ func (tt timeText) parse(b []byte) (v float64, zoned, ok bool, bad string) {
 	if loc == nil {
 		loc = time.UTC
 	}
+	if w, rest := zoneWord(b); w == "UTC" || w == "Z" {
+		// A local date saying it is UTC, as "02.02.2026 15:00:00 UTC".
+		if t, bad, form := parseLocalDate(rest, tt.order, time.UTC); form && bad == "" {
+			return unixSeconds(t), true, true, ""
+		}
+	}
 	t, bad, form := parseLocalDate(b, tt.order, loc)
 	if !form || bad != "" {
 		return 0, false, false, bad
 	}
 	return unixSeconds(t), tt.stated, true, ""
+}
+
+// zoneWord splits a trailing zone word off a time text: " MEZ", " CET",
+// " UTC", " Z" after a time of day (a text holding a ':'), two to five
+// ASCII letters. w is "" when there is none.
+func zoneWord(b []byte) (w string, rest []byte) {
+	i := bytes.LastIndexByte(b, ' ')
+	if i <= 0 || bytes.IndexByte(b[:i], ':') < 0 {
+		return "", b
+	}
+	word := b[i+1:]
+	if len(word) < 1 || len(word) > 5 {
+		return "", b
+	}
+	for _, c := range word {
+		if !(c >= 'A' && c <= 'Z' || c >= 'a' && c <= 'z') {
+			return "", b
+		}
+	}
+	if len(word) == 1 && word[0] != 'Z' {
+		return "", b
+	}
+	switch strings.ToUpper(string(word)) {
+	case "AM", "PM":
+		return "", b // the 12-hour clock's, which the time's own message refuses
+	}
+	return string(word), bytes.TrimRight(b[:i], " ")
 }
 
 // localDate splits a date written in a local form, with '/', '.' or '-'

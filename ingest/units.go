@@ -19,8 +19,9 @@ type fieldUnit struct {
 var fieldUnitTable = []fieldUnit{
 	// The SI units, and the gamma, the name of 1 nT long used in
 	// geophysics and still in survey logs (1 γ = 1 nT = 1e-9 T, BIPM,
-	// SI Brochure, 8th ed., 2006, Table 10).
-	{[]string{"nT", "nt", "NT"}, []string{"nanotesla", "nanoteslas", "gamma", "gammas"}, 1},
+	// SI Brochure, 8th ed., 2006, Table 10), whose symbol is the Greek
+	// small letter gamma (U+03B3).
+	{[]string{"nT", "nt", "NT", "γ"}, []string{"nanotesla", "nanoteslas", "gamma", "gammas"}, 1},
 	{[]string{"pT", "pt"}, []string{"picotesla", "picoteslas"}, 1e-3},
 	{[]string{"uT", "µT", "μT", "ut", "UT"}, []string{"microtesla", "microteslas"}, 1e3},
 	{[]string{"mT", "mt"}, []string{"millitesla", "milliteslas"}, 1e6},

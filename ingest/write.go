@@ -7,12 +7,15 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"slices"
 	"strconv"
 	"strings"
+	"unicode/utf8"
 
 	"github.com/apache/arrow-go/v18/arrow"
 	"github.com/apache/arrow-go/v18/arrow/array"
 	"github.com/apache/arrow-go/v18/arrow/ipc"
+	"github.com/apache/arrow-go/v18/arrow/memory"
 	"github.com/apache/arrow-go/v18/parquet"
 	"github.com/apache/arrow-go/v18/parquet/compress"
 	"github.com/apache/arrow-go/v18/parquet/pqarrow"
@@ -167,7 +170,12 @@ func writeIPC(w io.Writer, r Reader, file bool) error {
 		wr = ipc.NewWriter(w, ipc.WithSchema(r.Schema()))
 	}
 	for r.Next() {
-		if err := wr.Write(r.RecordBatch()); err != nil {
+		rec, fixed := validText(r.RecordBatch())
+		err := wr.Write(rec)
+		if fixed {
+			rec.Release()
+		}
+		if err != nil {
 			wr.Close()
 			return err
 		}
@@ -192,15 +200,22 @@ func writeParquet(w io.Writer, r Reader) error {
 	// well, small enough that memory does not grow with the file.
 	rows := int64(0)
 	for r.Next() {
-		rec := r.RecordBatch()
+		rec, fixed := validText(r.RecordBatch())
 		if rows > 0 && rows+rec.NumRows() > parquetGroupRows {
 			if err := fw.NewBufferedRowGroupChecked(); err != nil {
+				if fixed {
+					rec.Release()
+				}
 				fw.Close()
 				return err
 			}
 			rows = 0
 		}
-		if err := fw.WriteBuffered(rec); err != nil {
+		err := fw.WriteBuffered(rec)
+		if fixed {
+			rec.Release()
+		}
+		if err != nil {
 			fw.Close()
 			return err
 		}
@@ -221,7 +236,7 @@ func writeCSV(w io.Writer, r Reader) error {
 	md := sc.Metadata()
 	var buf []byte
 	for i, k := range md.Keys() {
-		v := strings.ReplaceAll(strings.ReplaceAll(md.Values()[i], "\n", " "), "\r", " ")
+		v := strings.ReplaceAll(strings.ReplaceAll(strings.ToValidUTF8(md.Values()[i], "\uFFFD"), "\n", " "), "\r", " ")
 		buf = append(buf, "# "...)
 		buf = append(buf, k...)
 		buf = append(buf, ": "...)
@@ -281,10 +296,53 @@ func writeCSV(w io.Writer, r Reader) error {
 }
 
 func appendCSVString(buf []byte, s string) []byte {
+	s = strings.ToValidUTF8(s, "\uFFFD")
 	if !strings.ContainsAny(s, ",\"\n\r#") && strings.TrimSpace(s) == s {
 		return append(buf, s...)
 	}
 	buf = append(buf, '"')
 	buf = append(buf, strings.ReplaceAll(s, `"`, `""`)...)
 	return append(buf, '"')
+}
+
+// validText returns rec with every text value that is not valid UTF-8
+// written with U+FFFD for each bad byte run, so that the Arrow and
+// Parquet string columns written hold UTF-8 as their type says, whatever
+// the input held (an Arrow file's group column is not checked on
+// reading). fixed says a new record was built, which the caller releases;
+// otherwise rec itself is returned.
+func validText(rec arrow.RecordBatch) (out arrow.RecordBatch, fixed bool) {
+	var cols []arrow.Array
+	for j, c := range rec.Columns() {
+		a, ok := c.(*array.String)
+		if !ok || !hasHigh(a.ValueBytes()) {
+			continue // no column of text, or ASCII text alone
+		}
+		bad := false
+		for i := 0; i < a.Len() && !bad; i++ {
+			bad = a.IsValid(i) && !utf8.ValidString(a.Value(i))
+		}
+		if !bad {
+			continue
+		}
+		if cols == nil {
+			cols = slices.Clone(rec.Columns())
+		}
+		b := array.NewStringBuilder(memory.DefaultAllocator)
+		b.Reserve(a.Len())
+		for i := 0; i < a.Len(); i++ {
+			if a.IsNull(i) {
+				b.AppendNull()
+			} else {
+				b.Append(strings.ToValidUTF8(a.Value(i), "\uFFFD"))
+			}
+		}
+		cols[j] = b.NewArray()
+		b.Release()
+		defer cols[j].Release()
+	}
+	if cols == nil {
+		return rec, false
+	}
+	return array.NewRecordBatch(rec.Schema(), cols, rec.NumRows()), true
 }

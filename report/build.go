@@ -61,6 +61,9 @@ type Fit struct {
 	// of a station disagree (route.Station.Walk).
 	Walk  string
 	Start time.Time
+	// Log is the path, as given, of the survey log the group's readings
+	// come from (Group.Log); empty when not known.
+	Log string
 	// Traverse names the traverse the group walks where the caller knows
 	// it (the group value its walks share), for the route to pair a
 	// station's walks (route.Station.Traverse); empty when not known.
@@ -875,6 +878,23 @@ func circuitOf(f *Fit, ac bool) (p *inverse.PairEstimate, strict, usable bool) {
 	return p, math.Abs(p.NetCurrent) <= 0.5*math.Max(math.Abs(s0.Current), math.Abs(o.Current)), true
 }
 
+// returnShareClause words, for a further AC conductor carrying current
+// back beside conductor 1 (its phase within 90° of anti-phase,
+// trackReturn), the share of conductor 1's current it returns and the net
+// current the two leave to return by other paths; "" otherwise. The
+// go-and-return wording of circuitOf covers only a pair within its depth
+// of each other; a return farther off (a water main 2 m from a service
+// cable carrying a tracer's earth return) was given only its phase from
+// conductor 1 (found in review), while a tracer user needs how much comes
+// back along it and how much goes to remote earth.
+func returnShareClause(t *Track) string {
+	if t.ReturnShare == nil || t.ReturnShareSigma == nil || t.NetToEarthA == nil || t.NetToEarthSigmaA == nil {
+		return ""
+	}
+	return fmt.Sprintf("; it carries back %s%% of conductor 1's current (its current times the cosine of its angle from anti-phase, over conductor 1's), and the two together leave a net %s A (their phasor sum) that returns by other paths, such as remote earth or conductors outside the survey",
+		pm(100**t.ReturnShare, 100**t.ReturnShareSigma), pm(*t.NetToEarthA, *t.NetToEarthSigmaA))
+}
+
 // circuitPartner is the index of the line that the route's conductor of
 // fit f is paired with when the route follows a go-and-return pair
 // (circuitOf), or -1.
@@ -893,7 +913,7 @@ func circuitPartner(f *Fit, ac, pairRoute bool) int {
 // pairRoute, the go-and-return pair it belongs to, see circuitOf).
 func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute bool, sensorHeight float64) (Group, route.Station) {
 	pts := f.Problem.Points
-	g := Group{Key: f.Key, Points: len(pts), Centroid: centroid(pts), Sources: []Source{}}
+	g := Group{Key: f.Key, Log: f.Log, Points: len(pts), Centroid: centroid(pts), Sources: []Source{}}
 	st := route.Station{Key: f.Key, Point: g.Centroid, AC: ac, Dipole: f.Dipole, Walk: f.Walk, Start: f.Start, Traverse: f.Traverse}
 	if f.Result == nil {
 		g.Problem = "the fit failed: " + f.Err.Error()
@@ -1091,6 +1111,7 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute boo
 			st.Phase, st.PhaseSigma = sw.NetCurrentPhase, sw.NetCurrentPhaseSigma
 			st.Depth, st.DepthSigma = depth, depthSigma
 			partner = sw.Lines[1]
+			st.SummedSplit = true
 		} else if s.Identifiable.Dip && finite(s.DipSigma) && s.DipSigma > 0 {
 			// The route compares the line's dip with its neighbours'
 			// depths (route.BendDoubt); a pair's or a summed split's

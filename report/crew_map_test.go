@@ -358,7 +358,7 @@ func TestGeoJSONDepthSaysItsReference(t *testing.T) {
 // route and conductor Points carry the same.
 func TestCSVFitStatusAndRealisticSpread(t *testing.T) {
 	// The columns before this change, in their order.
-	if i := slices.Index(csvHeader, "current_first_walk_sigma_a"); i != 49 || !slices.Equal(csvHeader[50:], []string{"fit", "station_scatter_current_a", "station_scatter_depth_m"}) {
+	if i := slices.Index(csvHeader, "current_first_walk_sigma_a"); i != 49 || !slices.Equal(csvHeader[50:53], []string{"fit", "station_scatter_current_a", "station_scatter_depth_m"}) {
 		t.Fatalf("columns moved: current_first_walk_sigma_a at %d, then %q", i, csvHeader[i+1:])
 	}
 	w := wickhamDoc(t, 5)

@@ -43,6 +43,8 @@ import (
 // StationScatterDepth, as results.json names them; cover's is depth's),
 // which the fits' sigmas, counting the reading noise alone, understate;
 // empty where the route has too few triples of used stations to give one.
+// log is the survey log the group's readings come from, its path as given
+// (Group.Log), on every row of the group.
 var csvHeader = []string{
 	"chainage_m", "route_chainage_m", "group", "source", "conductor", "kind", "signal",
 	"current_a", "current_sigma_a", "phase_deg", "phase_sigma_deg",
@@ -59,6 +61,7 @@ var csvHeader = []string{
 	"uncertainty_note",
 	"current_first_walk_a", "current_first_walk_sigma_a",
 	"fit", "station_scatter_current_a", "station_scatter_depth_m",
+	"log",
 }
 
 // csvCol maps a column name of csvHeader to its index.
@@ -156,6 +159,7 @@ func WriteCSVWith(w io.Writer, d *Document, opt CSVOptions) error {
 				set("route_chainage_m", fix(*g.Chainage, 3))
 			}
 			set("group", textCell(g.Key))
+			set("log", textCell(g.Log))
 			set("source", src)
 			set("kind", kind)
 			set("signal", d.signalCell())

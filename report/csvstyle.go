@@ -2,7 +2,9 @@ package report
 
 import (
 	"encoding/csv"
+	"slices"
 	"strings"
+	"unicode/utf8"
 )
 
 // CSVOptions say how results.csv and findings.csv are written
@@ -49,7 +51,20 @@ func newCSVRowWriter(w *csv.Writer, opt CSVOptions, header []string, text ...str
 
 // Write writes one row; with a decimal comma it changes the numeric cells
 // of a copy of row, not row itself.
+//
+// Text that is not valid UTF-8 (a name from an input that was not) is
+// written with U+FFFD for each bad byte run, so that the file is UTF-8
+// whatever its text (TestWritersValidUTF8).
 func (r *csvRowWriter) Write(row []string) error {
+	for i, c := range row {
+		if !utf8.ValidString(c) {
+			row = slices.Clone(row)
+			for j := i; j < len(row); j++ {
+				row[j] = strings.ToValidUTF8(row[j], "\uFFFD")
+			}
+			break
+		}
+	}
 	if r.comma {
 		out := make([]string, len(row))
 		for i, c := range row {
@@ -67,7 +82,7 @@ func (r *csvRowWriter) Write(row []string) error {
 // other column holds a number or is empty (TestCSVDecimalCommaNumbers).
 var csvTextColumns = []string{
 	"group", "kind", "signal", "depth_reference", "ok", "problem", "used", "left_out",
-	"uncertainty_note", "fit",
+	"uncertainty_note", "fit", "log",
 }
 
 // findingsTextColumns are the columns of findings.csv that hold text.

@@ -268,6 +268,11 @@ type Signal struct {
 	// window and not reported (the mains and their odd harmonics beside
 	// an injected tracer); empty when none were.
 	NuisanceHz []float64 `json:"nuisance_hz,omitempty"`
+	// PhasesWithinGroups is set when some group was fitted with a phase
+	// ramp (the field's frequency off the one demodulated at): the phases
+	// then compare between the conductors of a group, not along the route
+	// (PhaseWords).
+	PhasesWithinGroups bool `json:"phases_within_groups,omitempty"`
 }
 
 // MinCover is a minimum depth of cover and where it comes from.
@@ -283,6 +288,12 @@ type Group struct {
 	// Key is the group's value of the grouping column; empty when the
 	// run was not grouped.
 	Key string `json:"key"`
+	// Log is the survey log the group's readings come from (of its first
+	// reading, where a traverse runs on into the next file), its path as
+	// given; empty when not known. Which log (crew, day) a group came
+	// from could not be read from the outputs where its name stood bare
+	// beside another log's (found in review).
+	Log string `json:"log,omitempty"`
 	// Points is the number of readings fitted.
 	Points int `json:"points"`
 	// Chainage is the group's distance along the route, m; nil without
@@ -656,6 +667,18 @@ type Track struct {
 	// (trackPhase). Nil for DC or when no group has both phases.
 	PhaseFromConductor1      *float64 `json:"phase_from_conductor_1_deg,omitempty"`
 	PhaseFromConductor1Sigma *float64 `json:"phase_from_conductor_1_sigma_deg,omitempty"`
+	// ReturnShare is, for an AC conductor whose phase from conductor 1
+	// lies within 90° of anti-phase (a return path), the share of
+	// conductor 1's current it carries back, |I| cos(its angle from
+	// anti-phase) / |I1|, and NetToEarthA the net current the two carry
+	// between them, the magnitude of their phasor sum, A: what returns by
+	// other paths (remote earth, conductors outside the survey). Each with
+	// its one-sigma, weighted means over the groups trackPhase uses
+	// (trackReturn). Nil otherwise.
+	ReturnShare      *float64 `json:"return_share,omitempty"`
+	ReturnShareSigma *float64 `json:"return_share_sigma,omitempty"`
+	NetToEarthA      *float64 `json:"net_to_earth_a,omitempty"`
+	NetToEarthSigmaA *float64 `json:"net_to_earth_sigma_a,omitempty"`
 }
 
 // Crossing is how a further conductor runs at an angle to conductor 1.

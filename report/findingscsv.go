@@ -127,7 +127,7 @@ func WriteFindingsCSVWith(w io.Writer, d *Document, opt CSVOptions) error {
 		}
 		row := []string{
 			f.Severity, f.Kind, conductor,
-			fix(f.ChainageFrom, 3), fix(f.ChainageTo, 3), textCell(strings.Join(f.Groups, " ")),
+			fix(f.ChainageFrom, 3), fix(f.ChainageTo, 3), textCell(strings.Join(f.Groups, "; ")),
 			fix(f.Position[0], 3), fix(f.Position[1], 3), fix(f.Position[2], 3), lon, lat,
 			textCell(strings.Join(vals, "; ")), textCell(f.Message),
 		}

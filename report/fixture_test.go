@@ -93,7 +93,7 @@ func fenwickLane(geo bool) *Document {
 			panic(err)
 		}
 		g := Group{
-			Key: key, Points: len(pos), Centroid: p0, RMS: 2.0 + 0.1*float64(i%3),
+			Key: key, Log: "fenwick-lane.csv", Points: len(pos), Centroid: p0, RMS: 2.0 + 0.1*float64(i%3),
 			Background: earth, BackgroundSigma: [3]float64{0.5, 0.5, 0.6},
 			Chi2: 120 + float64(i), DOF: 56, OK: true, Status: "converged: relative reduction below tolerance",
 			Criteria: []Criterion{{Count: 1, AIC: 130, BIC: 145, RSS: 250, Chosen: true}, {Count: 2, AIC: 136, BIC: 170, RSS: 246}},

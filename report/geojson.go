@@ -148,7 +148,10 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 			"these features unless told the frame."
 	}
 	if r := d.Route; r != nil {
-		if f, ok := d.routeFeature(r, map[string]any{}); ok {
+		// conductor 1 named as its Points and findings name it, so that a
+		// GIS filtering or joining by conductor keeps the route's own line
+		// (found in review: it alone had none).
+		if f, ok := d.routeFeature(r, map[string]any{"conductor": 1}); ok {
 			fc.Features = append(fc.Features, f)
 		}
 	}
@@ -189,6 +192,9 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 				"fit":     fitStatus(&g),
 			}
 			putSigma(props, "depth_sigma_m", depthSigma)
+			if g.Log != "" {
+				props["log"] = g.Log
+			}
 			props["depth_reference"] = d.DepthReference.Kind
 			props["depth_note"] = depthNote
 			if r := d.conductorRoute(sourceConductor(d, &g, i, &s)); r != nil {
@@ -347,10 +353,12 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 			f.Properties["coordinate_note"] = GeoJSONLocalNote
 		}
 	}
+	setFeatureIDs(fc.Features)
 	// One feature per line: compact, and readable in a diff.
 	var buf bytes.Buffer
 	buf.WriteString(`{"type":"FeatureCollection",`)
 	head, err := json.Marshal(struct {
+		Schema   int            `json:"schema_version"`
 		Cautions []string       `json:"cautions"`
 		Warnings []string       `json:"warnings,omitempty"`
 		Frame    string         `json:"coordinate_frame"`
@@ -358,7 +366,7 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 		Origin   *Origin        `json:"local_origin,omitempty"`
 		Depth    DepthReference `json:"depth_reference"`
 		Signal   geoSignal      `json:"signal"`
-	}{Cautions, d.Warnings, fc.Frame, fc.Note, fc.Origin, d.DepthReference, d.geoSignalOf()})
+	}{SchemaVersion, Cautions, d.Warnings, fc.Frame, fc.Note, fc.Origin, d.DepthReference, d.geoSignalOf()})
 	if err != nil {
 		return fmt.Errorf("report: GeoJSON: %w", err)
 	}
@@ -390,8 +398,48 @@ type featureCollection struct {
 	Features []feature `json:"features"`
 }
 
+// setFeatureIDs gives each feature an id (RFC 7946 section 3.2) made of
+// what it is and what it belongs to, "route/c1", "conductor/c1/T10/1"
+// (conductor 1's Point at group T10, its source 1), "finding/current-step/
+// c1/T07+T08", so that an asset register appending runs has a key that
+// does not hang on the features' order; a second feature with the same
+// parts gets "#2", a third "#3", in the order written.
+func setFeatureIDs(fs []feature) {
+	seen := map[string]int{}
+	for i := range fs {
+		p := fs[i].Properties
+		parts := []string{strings.ReplaceAll(fmt.Sprint(p["feature"]), " ", "-")}
+		if k, ok := p["kind"].(string); ok {
+			parts = append(parts, k)
+		}
+		if c, ok := p["conductor"]; ok {
+			parts = append(parts, fmt.Sprintf("c%v", c))
+		}
+		if g, ok := p["group"].(string); ok && g != "" {
+			parts = append(parts, g)
+		}
+		if s, ok := p["source"]; ok {
+			parts = append(parts, fmt.Sprint(s))
+		}
+		if a, ok := p["from_group"].(string); ok {
+			b, _ := p["to_group"].(string)
+			parts = append(parts, a+".."+b)
+		}
+		if gs, ok := p["groups"].([]string); ok && len(gs) > 0 {
+			parts = append(parts, strings.Join(gs, "+"))
+		}
+		id := strings.Join(parts, "/")
+		seen[id]++
+		if n := seen[id]; n > 1 {
+			id += fmt.Sprintf("#%d", n)
+		}
+		fs[i].ID = id
+	}
+}
+
 type feature struct {
 	Type       string         `json:"type"`
+	ID         string         `json:"id,omitempty"`
 	Geometry   geometry       `json:"geometry"`
 	Properties map[string]any `json:"properties"`
 }
@@ -899,6 +947,9 @@ func (d *Document) failedFitFeature(g *Group) feature {
 		"fit":     FitFailed,
 		"note": "The fit at this group failed: it found no conductor its readings determine, and its numbers mean nothing here. " +
 			"This Point is the centre of the group's readings, not a conductor: do not use it as a conductor's position, depth or current.",
+	}
+	if g.Log != "" {
+		props["log"] = g.Log
 	}
 	if g.Problem != "" {
 		props["problem"] = g.Problem

@@ -3,6 +3,7 @@ package report
 import (
 	"bytes"
 	"encoding/json"
+	"fmt"
 	"math"
 	"testing"
 )
@@ -132,5 +133,112 @@ func TestGeoJSONRouteOnlyUsedStations(t *testing.T) {
 				}
 			}
 		}
+	}
+}
+
+// TestGeoJSONRouteConductorProperty: every route line carries its
+// conductor's number, conductor 1's too, as its Points and findings do
+// (README: route.geojson), so that a GIS filtering by conductor
+// (ogr2ogr -where "conductor=1") keeps the route's own line; found in
+// review: conductor 1's line alone had none.
+func TestGeoJSONRouteConductorProperty(t *testing.T) {
+	d, err := Build(Document{}, twoCables(true), &BuildSettings{Noise: 2, SensorHeight: 0.3})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(d.Conductors) == 0 {
+		t.Fatal("fixture: no second conductor")
+	}
+	_, feats := geoCollection(t, d)
+	seen := map[float64]bool{}
+	for _, f := range feats {
+		if f.Properties["feature"] != "route" {
+			continue
+		}
+		c, ok := f.Properties["conductor"].(float64)
+		if !ok {
+			t.Errorf("a route feature has no numeric conductor property: %v", f.Properties["conductor"])
+			continue
+		}
+		seen[c] = true
+	}
+	for c := 1; c <= 1+len(d.Conductors); c++ {
+		if !seen[float64(c)] {
+			t.Errorf("no route feature with conductor %d (seen %v)", c, seen)
+		}
+	}
+}
+
+// TestGeoJSONSchemaVersionAndIDs: route.geojson names the schema it was
+// written with, as results.json does (schema_version), and every feature
+// has an id (RFC 7946 section 3.2: "a commonly used identifier"), unique
+// in the file and made of what the feature is and belongs to, so that the
+// same run written twice, or a run whose features come in another order,
+// keeps each feature's key; found in review: no id, no version.
+func TestGeoJSONSchemaVersionAndIDs(t *testing.T) {
+	d, err := Build(Document{}, twoCables(true), &BuildSettings{Noise: 2, SensorHeight: 0.3})
+	if err != nil {
+		t.Fatal(err)
+	}
+	top, _ := geoCollection(t, d)
+	var v int
+	if err := json.Unmarshal(top["schema_version"], &v); err != nil || v != SchemaVersion {
+		t.Errorf("schema_version = %s, want %d", top["schema_version"], SchemaVersion)
+	}
+	var buf bytes.Buffer
+	if err := WriteGeoJSON(&buf, d); err != nil {
+		t.Fatal(err)
+	}
+	var fc struct {
+		Features []struct {
+			ID         *string
+			Properties map[string]any
+		}
+	}
+	if err := json.Unmarshal(buf.Bytes(), &fc); err != nil {
+		t.Fatal(err)
+	}
+	ids := map[string]bool{}
+	byKey := map[string]string{} // a conductor Point's group/source -> its id
+	for _, f := range fc.Features {
+		if f.ID == nil || *f.ID == "" {
+			t.Errorf("feature %v has no id", f.Properties["feature"])
+			continue
+		}
+		if ids[*f.ID] {
+			t.Errorf("id %q twice", *f.ID)
+		}
+		ids[*f.ID] = true
+		if f.Properties["feature"] == "conductor" {
+			byKey[fmt.Sprint(f.Properties["group"], "/", f.Properties["source"])] = *f.ID
+		}
+	}
+	if !ids["route/c1"] || !ids["route/c2"] {
+		t.Errorf("no route/c1 and route/c2 among the ids %v", ids)
+	}
+	// The ids do not hang on the features' order: the same document with
+	// its groups reversed gives each conductor Point the same id.
+	for i, j := 0, len(d.Groups)-1; i < j; i, j = i+1, j-1 {
+		d.Groups[i], d.Groups[j] = d.Groups[j], d.Groups[i]
+	}
+	buf.Reset()
+	if err := WriteGeoJSON(&buf, d); err != nil {
+		t.Fatal(err)
+	}
+	if err := json.Unmarshal(buf.Bytes(), &fc); err != nil {
+		t.Fatal(err)
+	}
+	n := 0
+	for _, f := range fc.Features {
+		if f.Properties["feature"] != "conductor" {
+			continue
+		}
+		n++
+		if k := fmt.Sprint(f.Properties["group"], "/", f.Properties["source"]); byKey[k] != *f.ID {
+			t.Errorf("conductor Point %s: id %q with the groups reversed, %q before", k, *f.ID, byKey[k])
+		}
+	}
+	if n == 0 {
+		t.Error("no conductor Points")
 	}
 }

@@ -1,6 +1,7 @@
 package report
 
 import (
+	"bytes"
 	"fmt"
 	"html/template"
 	"io"
@@ -9,6 +10,7 @@ import (
 	"sort"
 	"strconv"
 	"strings"
+	"unicode/utf8"
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/vg"
@@ -44,7 +46,18 @@ func writeHTML(w io.Writer, d *Document, opt CSVOptions) error {
 		return err
 	}
 	v.CSVText = csvText(opt)
-	if err := crewTemplate.Execute(w, v); err != nil {
+	// The page says it is UTF-8: text that is not (a name from an input
+	// that was not) is written with U+FFFD for each bad byte run, in the
+	// text, the attributes and the plots alike (TestWritersValidUTF8).
+	var page bytes.Buffer
+	if err := crewTemplate.Execute(&page, v); err != nil {
+		return fmt.Errorf("report: writing HTML: %w", err)
+	}
+	b := page.Bytes()
+	if !utf8.Valid(b) {
+		b = bytes.ToValidUTF8(b, []byte("\uFFFD"))
+	}
+	if _, err := w.Write(b); err != nil {
 		return fmt.Errorf("report: writing HTML: %w", err)
 	}
 	return nil
@@ -95,9 +108,12 @@ type view struct {
 	CautionShort string
 	// GroupCols is the number of columns of the table of every group.
 	GroupCols int
-	Plan      template.HTML
-	Current   template.HTML
-	Depth     template.HTML
+	// LogCol is true when the groups come from more than one survey log:
+	// the table of every group then names each group's log (Group.Log).
+	LogCol  bool
+	Plan    template.HTML
+	Current template.HTML
+	Depth   template.HTML
 	// Phase is the AC phase along the route (empty for DC), and
 	// FirstWalk the route's Route.FirstWalk, which the current plot's
 	// caption names.
@@ -195,6 +211,7 @@ type findingRow struct {
 // one entry per source, shown one under the other.
 type groupRow struct {
 	Key, Chainage, RMS, Points, Status string
+	Log                                string
 	// StatusShort is Status without why a fit failed or is poor, for
 	// print, where the column is too narrow for the why; empty for a
 	// sound fit.
@@ -223,6 +240,14 @@ func newView(d *Document) (*view, error) {
 		v.GroupCols++
 	}
 	if d.Signal.Mode == SignalAC {
+		v.GroupCols++
+	}
+	logs := map[string]bool{}
+	for _, g := range d.Groups {
+		logs[g.Log] = true
+	}
+	if len(logs) > 1 {
+		v.LogCol = true
 		v.GroupCols++
 	}
 	v.Title = d.Title
@@ -538,7 +563,7 @@ func (v *view) where(f Finding) string {
 }
 
 func (v *view) groupRow(g *Group) groupRow {
-	r := groupRow{Key: g.Key, Points: fmt.Sprint(g.Points), RMS: "–", Bad: !g.OK || g.Problem != ""}
+	r := groupRow{Key: g.Key, Log: g.Log, Points: fmt.Sprint(g.Points), RMS: "–", Bad: !g.OK || g.Problem != ""}
 	if rms, ok := GroupRMS(g); ok {
 		r.RMS = rms
 	}
@@ -1048,7 +1073,7 @@ func (v *view) summarise() {
 			sentence := fmt.Sprintf("%s is %s and %s%s",
 				what, endClause(d, r, &a, "chainage "), endClause(d, r, &b, ""), firstWalkClause(r))
 			if strings.Contains(sentence, "∠") {
-				sentence += " (phase angles " + PhaseAngleWords + ")"
+				sentence += " (phase angles " + PhaseWords(d.Signal) + ")"
 			}
 			v.Headline = append(v.Headline, sentence+".")
 			// The shallowest station is taken from every used one (cover is
@@ -1645,7 +1670,7 @@ func trackHeadline(d *Document, t *Track) string {
 		case -1:
 			line += ", flowing the same way as conductor 1"
 		}
-		line += trackPhaseClause(t)
+		line += trackPhaseClause(t) + returnShareClause(t)
 		lo, hi := used[0].Depth, used[0].Depth
 		for _, s := range used {
 			lo, hi = math.Min(lo, s.Depth), math.Max(hi, s.Depth)

@@ -323,7 +323,7 @@ func trackSummary(d *Document, t *Track) string {
 		if !t.Route.PairNet {
 			line += crossingFlow(used)
 		}
-		line += trackPhaseClause(t)
+		line += trackPhaseClause(t) + returnShareClause(t)
 		lo, hi := used[0].Depth, used[0].Depth
 		for _, s := range used {
 			lo, hi = math.Min(lo, s.Depth), math.Max(hi, s.Depth)

@@ -401,8 +401,8 @@ func TestBuildSecondConductorStep(t *testing.T) {
 			routes[n] = true
 		}
 	}
-	if !routes[0] || !routes[2] || len(routes) != 2 {
-		t.Errorf("GeoJSON route features for conductors %v, want the primary and conductor 2", routes)
+	if !routes[1] || !routes[2] || len(routes) != 2 {
+		t.Errorf("GeoJSON route features for conductors %v, want the primary (conductor 1) and conductor 2", routes)
 	}
 	buf.Reset()
 	if err := WriteHTML(&buf, d); err != nil {

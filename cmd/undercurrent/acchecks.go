@@ -13,6 +13,7 @@ import (
 
 	"undercurrent/calibrate"
 	"undercurrent/ingest"
+	"undercurrent/report"
 )
 
 // AC demodulation for locate: the default window, and the check that the
@@ -553,8 +554,10 @@ func (pl demodPlan) nearestMains(f float64) (h, m float64, ok bool) {
 // (calibrate.NuisanceSeparation): that line is not fitted and leaks into
 // the signal. "" when it does not, freq is itself a mains frequency or no
 // mains are fitted. (A harmonic folded from above the Nyquist frequency:
-// foldClash.)
-func (pl demodPlan) clash(freq, win float64) string {
+// foldClash.) The window it advises also fits the line apart without
+// leaking should it be strong in the log s beside the windows res
+// (advisedWindow; s and res may be nil).
+func (pl demodPlan) clash(s *ingest.Samples, res *calibrate.DemodResult, freq, win float64) string {
 	if calibrate.MainsNuisance(freq, win, pl.fs, pl.mains, nil) == nil {
 		return ""
 	}
@@ -565,8 +568,14 @@ func (pl demodPlan) clash(freq, win float64) string {
 		case d < 1e-9*freq:
 			return fmt.Sprintf("the signal's %s Hz is the %s of the %g Hz mains: a mains field there and the signal cannot be told apart, and its current will be read as the signal's; choose another frequency for the tracer if a mains field is near", pl.signalHz(freq), harmonicName(h), m)
 		case d < sep:
+			var share float64
+			if s != nil {
+				if sh, seen := pl.lineNear(s, res, h*m, freq); seen {
+					share = sh
+				}
+			}
 			return fmt.Sprintf("the signal's %s Hz lies %.3g Hz from the %s of the %g Hz mains (%g Hz), closer than %.3g s windows can fit apart (%.3g Hz): a mains field there is not fitted and leaks into the signal as noise or phantom conductors; use --window %.1f or longer",
-				pl.signalHz(freq), d, harmonicName(h), m, h*m, win, sep, separatingWindow(d))
+				pl.signalHz(freq), d, harmonicName(h), m, h*m, win, sep, advisedWindow(freq, d, share))
 		}
 	}
 	return ""
@@ -597,7 +606,7 @@ func (pl demodPlan) foldClash(s *ingest.Samples, res *calibrate.DemodResult, fre
 		return ""
 	}
 	d := math.Abs(freq - a)
-	how := fmt.Sprintf("; log at another rate, or through an anti-alias filter, or use --window %.1f or longer", separatingWindow(d))
+	how := fmt.Sprintf("; log at another rate, or through an anti-alias filter, or use --window %.1f or longer", advisedWindow(freq, d, share))
 	if d < 1e-9*freq {
 		how = "; log at another rate, or through an anti-alias filter"
 	}
@@ -605,10 +614,102 @@ func (pl demodPlan) foldClash(s *ingest.Samples, res *calibrate.DemodResult, fre
 		pl.fs, harmonicName(h), m, h*m, a, d, pl.signalHz(freq), win, sep, share, how)
 }
 
-// separatingWindow is the window, s, rounded up to 0.1 s, in which two
-// lines d Hz apart are fitted apart (calibrate.NuisanceSeparation).
-func separatingWindow(d float64) float64 {
-	return math.Ceil(10*calibrate.NuisanceSeparation(1)/d) / 10
+// advisedWindow is the window, s, rounded up to 0.1 s, in which a mains
+// line d Hz from the signal and share times as strong (lineNear; 0 when
+// not measured) is fitted apart from it (calibrate.NuisanceSeparation)
+// without leaking into it (strongSeparation): the one window every mains
+// warning advises. Before, the clash at the default window advised 1.0 s
+// for a 150 Hz line 2 Hz from a 152 Hz tracer, where that line, 8.9 times
+// the signal, biased every group; and the frequency check's warning
+// advised 16.9 s from the distance to the estimate it had pulled (found
+// in review). Of the windows up to 5 s longer, the first that also holds
+// whole cycles of the signal at freq Hz is taken (the walked sensor's path
+// average is modelled over whole cycles: 1.8 s at 152 Hz, 273.6 cycles,
+// left a misfit of 10 times the noise that 2.0 s did not); when none does,
+// the shortest.
+func advisedWindow(freq, d, share float64) float64 {
+	n := math.Ceil(10*strongSeparation(share)/d - 1e-9)
+	for k := n; k <= n+50; k++ {
+		if c := k / 10 * freq; math.Abs(c-math.Round(c)) < 1e-6*c {
+			return k / 10
+		}
+	}
+	return n / 10
+}
+
+// strongSeparation is the distance times the window, d·T, at which a
+// mains line share times as strong as the signal is fitted beside it
+// without leaking into it: calibrate.NuisanceSeparation's 2 for a line no
+// stronger than the signal, 2·√share for a stronger one. A fitted line's
+// field changes as the sensor walks, and what its columns (the line and
+// its linear change) leave of that change overlaps the signal's by an
+// amount that falls as the windows grow and the two part (as 1/(d·T)² for
+// the curvature a window leaves), and grows with the line's strength, so a
+// line share times stronger needs √share the separation for the same
+// leak. A 152 Hz tracer (2 A) beside a fitted 150 Hz line 8.9 times as
+// strong (a 12 A 3rd harmonic of a feeder 2.5 m away), walked at 0.25 m/s
+// at 1000 Hz: in 1.0 and 1.5 s windows (d·T 2 and 3) the currents and
+// depths read 3 to 5 sigma off and a 5 mA phantom conductor lay on the
+// feeder in every group, all sound; in 2.0, 2.5 and 3.0 s windows the
+// pulls stayed within ±1.4 and no phantom was fitted (seed 1); 3.0 s is
+// what the rule asks (d·T ≥ 6.0).
+func strongSeparation(share float64) float64 {
+	return calibrate.NuisanceSeparation(1) * math.Sqrt(math.Max(1, share))
+}
+
+// strongReach is the most separations (calibrate.NuisanceSeparation) a
+// fitted mains line may lie from the signal for strongLine to measure
+// it: within that a strong line may leak (strongSeparation asks 3 for a
+// line 9 times the signal); farther, the check is not made, so that a
+// strong 50 Hz field 78 Hz from a 128 Hz tracer in 0.1 s windows (d·T 7.8)
+// is not measured at every run.
+const strongReach = 3
+
+// strongLine checks the mains lines fitted beside the signal in the
+// windows res of the log s (res.Nuisance, at res.Freq in res.Window s
+// windows) for one too strong for its distance (strongSeparation): it
+// returns a warning naming the line, its strength and the window that
+// fits it apart (or, when the longest group is shorter than that window,
+// that no window fits), and the problem that keeps the log's groups from
+// counting as sound; "" for both when every line is far enough apart for
+// its strength.
+func (pl demodPlan) strongLine(s *ingest.Samples, res *calibrate.DemodResult) (warning, problem string) {
+	if res == nil || len(res.Windows) == 0 || !(pl.fs > 0) {
+		return "", ""
+	}
+	win, freq := res.Window, res.Freq
+	var at, dist, share, need float64
+	for _, f := range res.Nuisance {
+		d := math.Abs(f - freq)
+		if d*win >= strongReach*calibrate.NuisanceSeparation(1) {
+			continue
+		}
+		sh, seen := pl.lineNear(s, res, f, freq)
+		if !seen || d*win >= strongSeparation(sh) {
+			continue
+		}
+		if w := advisedWindow(freq, d, sh); w > need {
+			at, dist, share, need = f, d, sh, w
+		}
+	}
+	if need == 0 {
+		return "", ""
+	}
+	h, m, _ := pl.nearestMains(at)
+	name := fmt.Sprintf("the %s of the %g Hz mains (%g Hz)", harmonicName(h), m, at)
+	span := longestGroupSpan(res.Windows, win)
+	advice := fmt.Sprintf("use --window %.1f or longer", need)
+	if need > span {
+		advice = fmt.Sprintf("no window fits: that needs windows of %.1f s, and the longest group spans %.3g s; walk the traverses more slowly or log longer ones, or move the tracer farther from the mains harmonics", need, span)
+	}
+	hz := pl.signalHz(freq)
+	if pl.dec == 0 {
+		hz = strconv.FormatFloat(freq, 'g', 7, 64) // an estimate, in full, read 152.01139378898887
+	}
+	warning = fmt.Sprintf("%s, fitted beside the signal, lies %.3g Hz from the signal's %s Hz and is %.2g times as strong where the signal is strongest: in %.4g s windows (%.2g times 1/window apart) what its columns leave of its field's change as the sensor walks leaks into the signal (currents and depths off by several sigma, and a phantom conductor where the mains cable lies, in groups that look sound); a line that strong is fitted apart at %.2g times 1/window or more; %s",
+		name, dist, hz, share, win, dist*win, strongSeparation(share), advice)
+	problem = fmt.Sprintf("a mains line %.2g times the signal lies %.3g Hz from it, too near for %.4g s windows (see the warnings)", share, dist, win)
+	return warning, problem
 }
 
 // foldedMainsOrder is the highest order of the mains' odd harmonics that
@@ -636,12 +737,30 @@ func (pl demodPlan) foldedMains(f, sep float64) (h, m, a float64, ok bool) {
 			if al > pl.fs/2 {
 				al = pl.fs - al
 			}
+			if pl.onMainsLine(al, sep) {
+				// A line seen there is (most likely) the mains harmonic
+				// below the Nyquist frequency: clash names it, or it is
+				// fitted.
+				continue
+			}
 			if d := math.Abs(f - al); d < best {
 				best, h, m, a, ok = d, hh, mm, al, true
 			}
 		}
 	}
 	return h, m, a, ok
+}
+
+// onMainsLine reports whether f lies within sep Hz of an odd harmonic of
+// a mains frequency of pl below 0.45 of the sample rate. A harmonic
+// folded there from above the Nyquist frequency cannot be told in the log
+// from that line: at exactly 1000 Hz sampling the 37th harmonic of 50 Hz
+// folds onto the 3rd, and a line seen there had been blamed on the 37th,
+// with advice to re-log through an anti-alias filter, beside a strong
+// 150 Hz field (found in review).
+func (pl demodPlan) onMainsLine(f, sep float64) bool {
+	h, m, ok := pl.nearestMains(f)
+	return ok && h*m < 0.45*pl.fs && math.Abs(f-h*m) < sep
 }
 
 // pull returns the mains line (a harmonic, or one folded from above the
@@ -655,8 +774,13 @@ func (pl demodPlan) pull(s *ingest.Samples, res *calibrate.DemodResult, freq, si
 		return 0, "", false
 	}
 	sep := calibrate.NuisanceSeparation(win)
-	if h, m, ok := pl.nearestMains(freq); ok && math.Abs(freq-h*m) < sep {
-		if _, seen := pl.lineNear(s, res, h*m, signal); seen {
+	// A line fitted beside the signal but too strong for its distance
+	// (strongSeparation) pulls as well: at 1.5 s windows a 150 Hz line 3.3
+	// times a 152 Hz tracer, 2 Hz off and so fitted, put the estimate at
+	// 152.011 ± 0.002 Hz, and the run was demodulated there (found in
+	// review).
+	if h, m, ok := pl.nearestMains(freq); ok && math.Abs(freq-h*m) < strongReach*sep {
+		if share, seen := pl.lineNear(s, res, h*m, signal); seen && math.Abs(freq-h*m)*win < strongSeparation(share) {
 			return h * m, fmt.Sprintf("the %s of the %g Hz mains (%g Hz)", harmonicName(h), m, h*m), true
 		}
 	}
@@ -765,8 +889,17 @@ func harmonicName(h float64) string {
 	return fmt.Sprintf("%gth harmonic", h)
 }
 
-// logRate is the sample rate of s, Hz: the reciprocal of the median
-// positive time step among the first 4096; 0 when there is none.
+// logRate is the sample rate of s, Hz: the steps of the longest steady
+// run of readings (each within rateRunTolerance of the median positive
+// time step among the first 4096) over the run's span; 0 when there is
+// no step. The median step alone is one interval as the stamps write it:
+// whole-microsecond stamps at exactly 1000 Hz, held as seconds since the
+// epoch (a float's spacing there is 0.24 µs), stepped 999.92 or 1000.17
+// µs, and the median read 1000.08 Hz (1300.2 Hz for a 1300 Hz log), which
+// put a folded mains harmonic's alias 1.86 Hz from a 152 Hz tracer instead
+// of on the fitted 150 Hz line and blamed a 37th harmonic that was not
+// there (found in review). Over a run of n steps the span's own rounding
+// is shared by all n.
 func logRate(s *ingest.Samples) float64 {
 	var d []float64
 	for i := 1; i < len(s.Time) && len(d) < 4096; i++ {
@@ -778,8 +911,28 @@ func logRate(s *ingest.Samples) float64 {
 		return 0
 	}
 	sort.Float64s(d)
-	return 1 / d[len(d)/2]
+	med := d[len(d)/2]
+	best, span, start := 0, 0.0, 0
+	for i := 1; i <= len(s.Time); i++ {
+		if i < len(s.Time) && math.Abs(s.Time[i]-s.Time[i-1]-med) <= rateRunTolerance*med {
+			continue
+		}
+		if n := i - 1 - start; n > best && s.Time[i-1] > s.Time[start] {
+			best, span = n, s.Time[i-1]-s.Time[start]
+		}
+		start = i
+	}
+	if best < 2 {
+		return 1 / med
+	}
+	return float64(best) / span
 }
+
+// rateRunTolerance is how far, as a share of the median step, a step may
+// be from it and still continue a steady run (logRate): the stamps'
+// rounding and a clock's jitter stay well within it, a pause or a
+// repeated stamp does not.
+const rateRunTolerance = 0.25
 
 // demodulateAC demodulates s at o.freq with o.window (or defaultWindow),
 // checks the field's frequency against o.freq and, when it is off (see
@@ -817,7 +970,7 @@ func demodulateACLeftOut(o *locateOptions, s *ingest.Samples, leftOut []float64)
 	if lengthened != "" {
 		res.Warnings = append([]string{lengthened}, res.Warnings...)
 	}
-	if w := pl.clash(o.freq, win); w != "" {
+	if w := pl.clash(s, res, o.freq, win); w != "" {
 		res.Warnings = append([]string{w}, res.Warnings...)
 	}
 	if w := pl.foldClash(s, res, o.freq, win); w != "" {
@@ -939,9 +1092,15 @@ func demodulateACLeftOut(o *locateOptions, s *ingest.Samples, leftOut []float64)
 		if !ok {
 			continue
 		}
-		d := math.Min(math.Abs(o.freq-at), math.Abs(est.freq-at))
+		// The window is advised from the line's distance to the signal
+		// given: the estimate is the one pulled towards the line.
+		d := math.Abs(o.freq - at)
+		var share float64
+		if sh, seen := pl.lineNear(s, res, at, o.freq); seen {
+			share = sh
+		}
 		return res, win, append(res.Warnings, fmt.Sprintf("the windows' fitted frequencies put the AC field at %.*f ± %.*f Hz, not the %g Hz given, but %s lies too near for %.3g s windows to fit it apart, and pulls every window's frequency towards it: the estimate is not trusted, and the results assume the %g Hz given; use --window %.1f or longer to fit the two apart (the frequency is then checked without the pull)",
-			dec, est.freq, dec, est.sigma, o.freq, name, win, o.freq, separatingWindow(d))), freqHints{}, nil
+			dec, est.freq, dec, est.sigma, o.freq, name, win, o.freq, advisedWindow(o.freq, d, share))), freqHints{}, nil
 	}
 	// A window of whole cycles of --freq becomes the nearest whole number
 	// of cycles of the estimate: the windows' phasors are the path averages
@@ -969,7 +1128,7 @@ func demodulateACLeftOut(o *locateOptions, s *ingest.Samples, leftOut []float64)
 	// unfitted by --mains 60 among them (found in review).
 	pe := pl
 	pe.dec = dec
-	if w := pe.clash(est.freq, win2); w != "" {
+	if w := pe.clash(s, again, est.freq, win2); w != "" {
 		again.Warnings = append([]string{w}, again.Warnings...)
 	}
 	if w := pe.foldClash(s, again, est.freq, win2); w != "" {
@@ -1195,7 +1354,7 @@ type lineProbe struct {
 // with their linear and quadratic change, and the mains lines fitted
 // beside it (calibrate.MainsNuisance in 0.1 s windows) with their linear
 // change. Nil when there is too little to fit.
-func (pl demodPlan) newLineProbe(s *ingest.Samples, res *calibrate.DemodResult, signal, span float64) *lineProbe {
+func (pl demodPlan) newLineProbe(s *ingest.Samples, res *calibrate.DemodResult, signal, span, at float64) *lineProbe {
 	if res == nil || len(res.Windows) == 0 || s.Len() < 64 {
 		return nil
 	}
@@ -1211,7 +1370,13 @@ func (pl demodPlan) newLineProbe(s *ingest.Samples, res *calibrate.DemodResult, 
 			rows = append(rows, i)
 		}
 	}
-	lp := &lineProbe{others: calibrate.MainsNuisance(signal, mainsWindowStep, pl.fs, pl.mains, nil)}
+	lp := &lineProbe{}
+	for _, f := range calibrate.MainsNuisance(signal, mainsWindowStep, pl.fs, pl.mains, nil) {
+		// The line asked about is measured, not fitted in the base.
+		if math.Abs(f-at) >= 1 {
+			lp.others = append(lp.others, f)
+		}
+	}
 	p := 8 + 4*len(lp.others)
 	if len(rows) < 4*(p+2) {
 		return nil
@@ -1311,12 +1476,65 @@ func (lp *lineProbe) test(at float64) (share float64, ok bool) {
 
 // lineNear reports whether the log holds a line at at Hz beside the
 // signal at freq Hz (lineProbe.test), looked for over max(1 s,
-// 2.5/|at - freq|), at most 8 s: two and a half beats of the two.
+// 2.5/|at - freq|), at most 8 s: two and a half beats of the two. A mains
+// line fitted beside the signal is measured too (left out of the probe's
+// base: strongLine).
 func (pl demodPlan) lineNear(s *ingest.Samples, res *calibrate.DemodResult, at, freq float64) (share float64, ok bool) {
 	span := math.Min(8, math.Max(1, 2.5/math.Max(math.Abs(at-freq), 1e-9)))
-	lp := pl.newLineProbe(s, res, freq, span)
+	lp := pl.newLineProbe(s, res, freq, span, at)
 	if lp == nil {
 		return 0, false
 	}
 	return lp.test(at)
+}
+
+// leakyDocument marks the groups of the logs in which a fitted mains line
+// too strong for its distance from the signal leaks into it (strongLine;
+// their Problem, so that they are not counted sound: the leak biases every
+// group alike, and each fit alone looks clean).
+func leakyDocument(doc *report.Document, sv *survey) {
+	if len(sv.leaky) == 0 {
+		return
+	}
+	from := map[string]string{}
+	for _, g := range sv.groups {
+		from[g.key] = g.from
+	}
+	for i := range doc.Groups {
+		g := &doc.Groups[i]
+		why, ok := sv.leaky[from[g.Key]]
+		if !ok {
+			continue
+		}
+		if g.Problem != "" {
+			g.Problem += "; "
+		}
+		g.Problem += why
+	}
+}
+
+// shortClash is what noWindowAdvice adds to its advice of windows of w
+// seconds for the log s: that in windows that short a mains line lies
+// too near the signal to be fitted apart (clash), so that no window fits
+// both the log's runs and the line. Before, 0.6 s traverses refused at
+// --window 1.0 advised 0.5987 s windows, in which a 150 Hz line 2 Hz from
+// a 152 Hz tracer is not fitted at all (found in review). "" when the
+// line is apart or no mains are fitted.
+func shortClash(o *locateOptions, s *ingest.Samples, w float64) string {
+	pl := demodPlan{mains: o.mains, fs: logRate(s)}
+	if calibrate.MainsNuisance(o.freq, w, pl.fs, pl.mains, nil) == nil {
+		return ""
+	}
+	h, m, ok := pl.nearestMains(o.freq)
+	if !ok {
+		return ""
+	}
+	d := math.Abs(o.freq - h*m)
+	if d >= calibrate.NuisanceSeparation(w) {
+		return ""
+	}
+	if d < 1e-9*o.freq {
+		return fmt.Sprintf(" (though the signal lies on the %s of the %g Hz mains, which no window tells from it)", harmonicName(h), m)
+	}
+	return fmt.Sprintf(" (though in windows that short the %s of the %g Hz mains, %.3g Hz from the signal, cannot be fitted apart and leaks into it: that needs --window %.1f or longer, longer than the log's runs, so no window fits both; log longer runs, or move the tracer farther from the mains harmonics)", harmonicName(h), m, d, advisedWindow(o.freq, d, 0))
 }

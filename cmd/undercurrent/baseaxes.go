@@ -691,7 +691,9 @@ func levelMisfit(g *group, res *inverse.Result) float64 {
 	if r <= soundMisfit || !finite(r) {
 		return r
 	}
-	plan, up, _ := trackScatter(g.points, sensorTracks(g.points))
+	// Pooled over east and north (trackScatterPooled): the rounding's
+	// step bounds its error below.
+	_, plan, up, _ := trackScatterPooled(g.points, sensorTracks(g.points))
 	q := positionQuantum(g.points) / math.Sqrt(12)
 	plan, up = math.Max(plan, q), math.Max(up, q)
 	if !(plan > 0 || up > 0) {

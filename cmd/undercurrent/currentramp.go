@@ -21,7 +21,8 @@ import (
 // misfit other checks (the tee's step, the calibration's effect, the
 // end's bracket) rely on.
 //
-// The guard looks at the survey's ramped traverses together. A ramp in
+// The guard looks at each log's ramped traverses together (one log, one
+// sensor: see guardTimeRamps for why not across logs). A ramp in
 // time expressed per metre along a common axis (its sign times the
 // direction the traverse was walked along that axis) follows the load's
 // swings: on a survey of several traverses it comes out of both signs. A
@@ -33,9 +34,9 @@ import (
 // ramped, the joins missed by 1.5-15 times the changes within the
 // traverses; on a slow ±5 % or ±10 % swing by 0.02-0.03. And a load swing
 // that matters changes the current by more than rampSurveyMin on some
-// traverse. Only where all hold are the ramps kept; otherwise every group
-// is fitted without its times, and the ramped ones again
-// (guardTimeRamps).
+// traverse. Only where all hold in a log are its ramps kept; otherwise
+// every group of that log is fitted without its times, and the ramped
+// ones again (guardTimeRamps).
 
 // rampSurveyMin is the least largest change of current over a traverse, a
 // fraction of its mean, for which the survey's ramps are kept: the steady
@@ -237,10 +238,17 @@ func rampJoins(rs []*group) (int, float64) {
 	return n, miss / scale
 }
 
-// guardTimeRamps keeps the DC groups' current ramps only when the survey's
-// ramped traverses show a current varying in time (timeRampsHold);
-// otherwise it marks every group to be fitted without its times
-// (group.noTimes) and fits the ramped ones again.
+// guardTimeRamps keeps the DC groups' current ramps only where the ramped
+// traverses of one log show a current varying in time (timeRampsHold),
+// judged log by log (group.from); for every other log it marks the log's
+// groups to be fitted without their times (group.noTimes) and fits its
+// ramped ones again. A log is one sensor's: two uncalibrated sensors'
+// spatial misfits, one per-metre sign each, had passed the sign test
+// together as a load swing, and their ramps had joined within each log,
+// so a merged two-crew survey took a false "current changed by about
+// 14%" caution (and widened sigmas that hid a real loss) that neither log
+// alone had (found in review). A swing must now show in one log's own
+// traverses: at least rampSurveyLeast of them.
 func guardTimeRamps(sv *survey, set *inverse.Settings, noise float64) {
 	if sv.ac {
 		return
@@ -249,13 +257,38 @@ func guardTimeRamps(sv *survey, set *inverse.Settings, noise float64) {
 	if len(rs) == 0 {
 		return
 	}
-	if ok, _ := timeRampsHold(rs); ok {
+	held := heldLogs(rs)
+	all := true
+	for _, g := range sv.groups {
+		all = all && held[g.from]
+	}
+	if all {
 		return
 	}
 	for _, g := range sv.groups {
-		g.noTimes = true
+		if !held[g.from] {
+			g.noTimes = true
+		}
 	}
 	for _, g := range rs {
-		g.res, g.err = inverse.FitLines(g.problem(false, sv.groupNoise(g, noise)), set)
+		if !held[g.from] {
+			g.res, g.err = inverse.FitLines(g.problem(false, sv.groupNoise(g, noise)), set)
+		}
 	}
+}
+
+// heldLogs is the set of logs (group.from) whose own ramped groups among
+// rs show a current varying in time (timeRampsHold).
+func heldLogs(rs []*group) map[string]bool {
+	byLog := map[string][]*group{}
+	for _, g := range rs {
+		byLog[g.from] = append(byLog[g.from], g)
+	}
+	held := map[string]bool{}
+	for log, lrs := range byLog {
+		if ok, _ := timeRampsHold(lrs); ok {
+			held[log] = true
+		}
+	}
+	return held
 }

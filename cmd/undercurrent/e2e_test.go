@@ -58,6 +58,7 @@ type resultDoc struct {
 	} `json:"frame"`
 	Groups []struct {
 		Key        string      `json:"key"`
+		Log        string      `json:"log"`
 		Chainage   *float64    `json:"chainage_m"`
 		Points     int         `json:"points"`
 		RMS        float64     `json:"rms_nt"`

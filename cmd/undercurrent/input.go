@@ -112,7 +112,7 @@ func isIAGAFile(path string) bool {
 var fieldUnits = ingest.FieldUnits
 
 func (f *readFlags) add(fs *pflag.FlagSet) {
-	fs.StringSliceVar(&f.columns, "column", nil, "map canonical columns to the file's names: `CANON=NAME`, e.g. bx=Bx_uT,time=t_s,group=traverse (repeatable; a name holding a comma is given as it is, --column 'bx=Field X, nT': a part after a comma without = continues the name)")
+	fs.StringSliceVar(&f.columns, "column", nil, "map canonical columns to the file's names: `CANON=NAME`, e.g. bx=Bx_uT,time=t_s,group=traverse (repeatable; a name holding a comma is given as it is, --column 'bx=Field X, nT': a part after a comma without = continues the name; time=DATE+TIME joins a date column and a time-of-day column with a space before the time is parsed, as in time=Datum+Uhrzeit, CSV only)")
 	fs.StringSliceVar(&f.units, "unit", nil, "units of columns: `CANON=UNIT`, e.g. bx=uT,time=ms (field "+fieldUnits+", each also with the size of a count before it for logs in counts, as bx=0.1nT or bx=100pT, or V/mV/uV/nV for induction coils with locate --coil; length m/cm/mm/km/ft; time s/ms/us/ns, or UTC for timestamps without a zone that are UTC; repeatable)")
 	fs.StringSliceVar(&f.columnsOld, "columns", nil, "same as --column")
 	fs.StringSliceVar(&f.unitsOld, "units", nil, "same as --unit")
@@ -276,7 +276,7 @@ func checkOption(flag, prefix string, opt ingest.Option) error {
 // --base): missing values are allowed (a base log is only interpolated,
 // and its gaps are reported), and the flags that say how far to trust a
 // file apply to it as to the survey logs: --allow-unterminated,
-// --time-order and --iaga-baseline-frame. The flags that describe the
+// --time-order and --iaga-baseline-frame; --date-order too. The flags that describe the
 // survey logs' layout (--column, --unit, --header, --delimiter, --comment,
 // --decimal-comma, --frame, --origin) do not: a base log comes from
 // another instrument, usually in another format. An IAGA-2002 base whose
@@ -293,6 +293,16 @@ func (f *readFlags) baseOptions(fs *pflag.FlagSet) []ingest.Option {
 	if fs != nil && fs.Changed("time-order") {
 		if o, err := ingest.ParseTimeOrder(f.timeOrder); err == nil {
 			opts = append(opts, ingest.WithTimeOrder(o))
+		}
+	}
+	// --date-order applies to the base too (--base-date-order, applied
+	// after it, overrides it): a date in a local order is refused
+	// without one, so no base read before is read otherwise now.
+	// --time-offset does not: a base log is often another instrument's,
+	// kept in UTC, and one named "Time (UTC)" would be refused with it.
+	if fs != nil && fs.Changed("date-order") {
+		if o, err := ingest.ParseDateOrder(f.dateOrder); err == nil {
+			opts = append(opts, ingest.WithDateOrder(o))
 		}
 	}
 	return opts
@@ -679,8 +689,11 @@ func inspectCtx(ctx context.Context, path string, opts ...ingest.Option) (*inges
 // with --column, and a count of one takes the singular.
 func cliWording(s string) string {
 	s = strings.ReplaceAll(s, "(try units ", "(try --unit ")
+	s = strings.ReplaceAll(s, "(WithTimeOffset, on the command line --time-offset +01:00)", "with --time-offset +01:00")
+	s = strings.ReplaceAll(s, "map time to both, DATE+TIME (on the command line --column time=DATE+TIME)", "--column time=DATE+TIME")
 	s = strings.ReplaceAll(s, "(try columns ", "(try --column ")
 	s = strings.ReplaceAll(s, "the option WithDecimalComma(true), on the command line --decimal-comma", "--decimal-comma")
+	s = strings.ReplaceAll(s, "the option WithDecimalComma(false), on the command line --decimal-comma=false", "--decimal-comma=false")
 	s = strings.ReplaceAll(s, "(WithFrame(FrameSensor), on the command line --frame sensor)", "(--frame sensor)")
 	s = strings.ReplaceAll(s, "(WithFrame, on the command line --frame)", "(--frame)")
 	s = mappingHint.ReplaceAllString(s, "with --column $1=NAME")

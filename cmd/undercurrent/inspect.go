@@ -96,6 +96,9 @@ Examples:
 				return err
 			}
 			noteUnterminated(in, rf.allowUnterminated)
+			if w := inspectGridWarning(in); w != "" {
+				in.Warnings = append(in.Warnings, w)
+			}
 			for i, w := range in.Warnings {
 				in.Warnings[i] = cliWording(w)
 			}
@@ -590,4 +593,36 @@ func readTimes(ctx context.Context, path string, opts []ingest.Option) (times []
 	}
 	naive, _ = ingest.TimeBasis(r)
 	return times, groups, naive, nil
+}
+
+// inspectGridWarning is what inspect says of positions that look like a
+// projected grid's eastings and northings, as locate does
+// (localGeoJSONWarning, gridUnderOrigin): x, y centred over originGridM
+// from the origin of an origin line (which locate refuses), or over
+// gridLikeM from a log without one (which locate cannot place on a map).
+// Found in review: inspect said nothing of grid coordinates at all.
+func inspectGridWarning(in *ingest.Inspection) string {
+	var e, n *float64
+	geo := false
+	for _, c := range in.Columns {
+		switch c.Column {
+		case ingest.ColX:
+			e = c.Mean
+			geo = strings.HasPrefix(c.Source, "WGS84 ")
+		case ingest.ColY:
+			n = c.Mean
+		}
+	}
+	if e == nil || n == nil || geo {
+		return ""
+	}
+	d := math.Hypot(*e, *n)
+	switch {
+	case in.Origin != nil && d > originGridM:
+		return gridUnderOriginText(*e, *n) + " (locate refuses it)"
+	case in.Origin == nil && d > gridLikeM:
+		return fmt.Sprintf("the readings are centred about %.0f m east, %.0f m north: they look like a projected grid's eastings and northings (a national grid or UTM), "+
+			"which locate cannot place on a map; give the log latitude and longitude (lat, lon and height columns) to have it placed (an origin line is for metres from a nearby point, not for grid coordinates)", *e, *n)
+	}
+	return ""
 }

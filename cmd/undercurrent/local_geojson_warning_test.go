@@ -115,4 +115,52 @@ func TestLocateWarnsGridCoordinates(t *testing.T) {
 	if strings.Contains(summary, "give the log's origin") {
 		t.Errorf("locate of grid coordinates still advises an origin line:\n%s", summary)
 	}
+	// inspect says so too (it said nothing of grid coordinates).
+	if insp := mustCLI(t, "inspect", grid); !strings.Contains(insp, "look like a projected grid") {
+		t.Errorf("inspect of grid coordinates does not say they look like a grid's:\n%s", insp)
+	}
+}
+
+// TestLocateRefusesGridCoordinatesUnderOrigin: the same grid eastings and
+// northings with an origin line (52.4512 N, 0.1738 E) were placed as
+// metres from that point, 560 km away, with no word (found in review:
+// UTM under an origin line landed in the Russian Far East, route.geojson
+// "wgs84" and valid). An origin line is for metres from a nearby point:
+// locate now refuses before the fit, saying so, and inspect says the
+// same; a log converted from latitude and longitude about its own first
+// reading, tens of metres across, is not refused (the control above).
+func TestLocateRefusesGridCoordinatesUnderOrigin(t *testing.T) {
+	dir := t.TempDir()
+	sc, _ := scenario(t, "single-line.toml")
+	s, err := simulate.Simulate(sc)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i := range s.X {
+		s.X[i] += 530000
+		s.Y[i] += 180000
+	}
+	s.Origin = &ingest.Geodetic{Lat: 52.4512, Lon: 0.1738, H: 1.5}
+	grid := filepath.Join(dir, "grid-origin.csv")
+	if err := ingest.WriteSamples(grid, s); err != nil {
+		t.Fatal(err)
+	}
+	code, out, errOut := cli(t, "locate", "--group-by", "group", "-o", filepath.Join(dir, "out"), grid)
+	if code == 0 {
+		t.Fatalf("locate of grid coordinates under an origin line: exit 0\n%s", out)
+	}
+	for _, want := range []string{"an origin line is for metres east and north from a nearby point", "look like a projected grid", "about 560 km"} {
+		if !strings.Contains(errOut, want) {
+			t.Errorf("locate's refusal lacks %q:\n%s", want, errOut)
+		}
+	}
+	if _, err := os.Stat(filepath.Join(dir, "out", "route.geojson")); err == nil {
+		t.Error("route.geojson written all the same")
+	}
+	insp := mustCLI(t, "inspect", grid)
+	for _, want := range []string{"an origin line is for metres east and north from a nearby point", "look like a projected grid"} {
+		if !strings.Contains(insp, want) {
+			t.Errorf("inspect lacks %q:\n%s", want, insp)
+		}
+	}
 }

@@ -49,6 +49,8 @@ type locateOptions struct {
 	baseUnits   []string
 	baseColumns []string
 	baseFrame   string // --base-frame: enu or ned ("" the file's own)
+	baseDates   string // --base-date-order: the base log's date order
+	baseOffset  string // --base-time-offset: the base log's UTC offset
 	freq        float64
 	window      float64
 	mainsText   string
@@ -135,6 +137,8 @@ func (o *locateOptions) setFlags(fs *pflag.FlagSet) {
 	fs.StringSliceVar(&o.baseColumns, "base-column", nil, "name the base log's columns, `CANON=NAME` as --column does for the survey logs (time=Time,bx=magX,by=magY,bz=magZ); not for an IAGA-2002 base")
 	fs.StringSliceVar(&o.baseUnits, "base-unit", nil, "units of the base log's columns, `CANON=UNIT` as --unit gives them for the survey logs (bx=uT,by=uT,bz=uT); a base log whose field is as steady as the Earth's but whose median lies outside the Earth's field band in nT is refused without it")
 	fs.StringVar(&o.baseFrame, "base-frame", "", "axes of the base log's field columns, `FRAME` enu or ned (default: the file's \"# undercurrent.frame:\" line or metadata, else enu); --frame applies to the survey logs only; not for an IAGA-2002 base, whose elements say")
+	fs.StringVar(&o.baseDates, "base-date-order", "", "order of day, month and year in the base log's text dates (02.02.2026 14:59:00): dmy, mdy or ymd, as --date-order for the survey logs (default: --date-order's, else such dates are refused)")
+	fs.StringVar(&o.baseOffset, "base-time-offset", "", "UTC offset of the base log's text times written without one, as +01:00, as --time-offset for the survey logs (default: they are read as UTC with a warning; --time-offset applies to the survey logs only, since a base log is often another instrument's, kept in UTC)")
 	fs.Float64Var(&o.freq, "freq", 0, "demodulate the AC field at `HZ` (50, 60, 16.7, 512...) and fit RMS currents with phase; the field's own frequency is then estimated from the log, and if it is off (a grid at 50.1 Hz) the log is demodulated at the estimate, with a warning saying so (too far off, it refuses and names the frequency found); without --freq the DC field is fitted (no frequency is estimated and AC is not looked for)")
 	fs.StringVar(&o.mainsText, "mains", "50,60", "with --freq at another frequency than the mains (an injected tracer, 16.7 Hz), fit the mains `HZ` (50, 60, both as 50,60, or none) and their odd harmonics alongside in every window, so that a strong mains field changing as the sensor walks does not leak into the signal as noise")
 	fs.Float64Var(&o.window, "window", 0, "AC demodulation window, `S` seconds (default: ten cycles at 50 or 60 Hz; at any other frequency ten cycles or 0.1 s, whichever is longer, rounded up to a multiple of 0.1 s, so that the window holds whole cycles of the 50 or 60 Hz mains and they do not leak in)")
@@ -567,8 +571,17 @@ Examples:
 // 530 km of easting would be read as 530 km from it (found in review);
 // such a log is told to give latitude and longitude instead, and that the
 // file's coordinates lie outside RFC 7946's range.
+//
+// With an origin the grid check applies too (found in review: UTM
+// eastings and northings under an origin line were placed 5,800 km away,
+// in the Russian Far East, without a word): readings centred over
+// originGridM from the origin are refused when read (gridUnderOrigin), and
+// a document holding such readings all the same gets that message here.
 func localGeoJSONWarning(doc *report.Document) string {
 	if doc.Frame.Origin != nil {
+		if e, n, far := gridLike(doc); far && math.Hypot(e, n) > originGridM {
+			return report.FileGeoJSON + ": " + gridUnderOriginText(e, n)
+		}
 		return ""
 	}
 	if e, n, ok := gridLike(doc); ok {
@@ -587,6 +600,59 @@ func localGeoJSONWarning(doc *report.Document) string {
 // within a few kilometres of it, while grid eastings and northings run to
 // hundreds of kilometres.
 const gridLikeM = 20e3
+
+// originGridM is how far from the origin its origin line names, m, a
+// log's readings may be centred: an origin line places metres east and
+// north of a nearby point, and a survey converted from latitude and
+// longitude about its first reading (convert) stays within tens of
+// kilometres of it even along a long route, while a projected grid's
+// eastings and northings lie hundreds to thousands of kilometres from any
+// point (UTM eastings 166 to 834 km, northings up to 9,300 km; a national
+// grid's hundreds of km from its false origin).
+const originGridM = 100e3
+
+// gridUnderOriginText says that positions centred at east e, north n
+// metres from their origin are a projected grid's, not metres from the
+// origin line's point.
+func gridUnderOriginText(e, n float64) string {
+	return fmt.Sprintf("the readings lie about %.0f km from the origin the log's origin line names (centred about %.0f m east, %.0f m north of it): "+
+		"an origin line is for metres east and north from a nearby point, and these x, y look like a projected grid's eastings and northings (a national grid or UTM), "+
+		"which about the origin would place the survey %.0f km away; give the log latitude and longitude (lat, lon and height columns) instead, and leave the origin line out",
+		math.Hypot(e, n)/1e3, e, n, math.Hypot(e, n)/1e3)
+}
+
+// gridUnderOrigin refuses a log whose x, y are about an origin (its origin
+// line) but whose readings are centred over originGridM from it
+// (gridUnderOriginText); nil otherwise, or when x, y came from latitude
+// and longitude.
+func gridUnderOrigin(s *ingest.Samples, geo bool) error {
+	if geo || s.Origin == nil {
+		return nil
+	}
+	e, n, ok := meanPlan(s.X, s.Y)
+	if !ok || math.Hypot(e, n) <= originGridM {
+		return nil
+	}
+	return fmt.Errorf("%s: %s", s.Source, gridUnderOriginText(e, n))
+}
+
+// meanPlan returns the mean of the finite x, y pairs, and whether there
+// was one.
+func meanPlan(x, y []float64) (e, n float64, ok bool) {
+	k := 0
+	for i := range min(len(x), len(y)) {
+		if math.IsNaN(x[i]) || math.IsInf(x[i], 0) || math.IsNaN(y[i]) || math.IsInf(y[i], 0) {
+			continue
+		}
+		e += x[i]
+		n += y[i]
+		k++
+	}
+	if k == 0 {
+		return 0, 0, false
+	}
+	return e / float64(k), n / float64(k), true
+}
 
 // gridLike returns the mean of doc's groups' centroids, east and north,
 // and whether it lies over gridLikeM from the frame's origin.
@@ -632,9 +698,12 @@ type group struct {
 	times   []float64       // AC: each window's centre time, s
 	ramp    *groupRamp      // AC: the phase ramp fitted (phaseramp.go); nil for none
 	res0    *inverse.Result // AC: with a ramp, the fit without one
-	windowN []float64       // AC: each window's sample count
-	wsigma  []float64       // AC: the windows' noise per axis (calibrate.Window.Sigma), nT
-	hint    float64         // AC: the offset of the group's own frequency, Hz, where the ramp search starts; 0 for none
+	// chirp is (AC) the drift of the field's frequency, Hz/s, followed
+	// within the group about its middle (followDrift); 0 for none.
+	chirp   float64
+	windowN []float64 // AC: each window's sample count
+	wsigma  []float64 // AC: the windows' noise per axis (calibrate.Window.Sigma), nT
+	hint    float64   // AC: the offset of the group's own frequency, Hz, where the ramp search starts; 0 for none
 	// estimated is set (AC) when the group was demodulated at a frequency
 	// estimated from the log, not the one given: off by about the
 	// estimate's sigma, so the ramp is always searched for (fitRamp).
@@ -661,7 +730,10 @@ func (g *group) problem(ac bool, noise float64) *inverse.Problem {
 		// it: the fit models that path average, not the field at its centre.
 		p.Phasors, p.Travel = g.phasors, g.half
 		if g.ramp != nil {
-			p.Phasors = turned(g.phasors, g.times, g.ramp.hz, g.ramp.mid)
+			p.Phasors = turned(g.phasors, g.times, g.ramp.hz, g.chirp, g.ramp.mid)
+		} else if g.chirp != 0 && len(g.times) > 0 {
+			mid, _ := timesMidSpan(g.times)
+			p.Phasors = turned(g.phasors, g.times, 0, g.chirp, mid)
 		}
 	} else {
 		p.Fields, p.Scale = g.fields, g.scale
@@ -686,6 +758,9 @@ type looseLog struct {
 }
 
 type survey struct {
+	// drifts are the steady drifts of the AC frequency followed in the
+	// groups' fits (followDrift).
+	drifts    []driftLaw
 	looseLogs []looseLog
 	// unchecked holds the AC logs whose frequency check could not decide
 	// (wrongfreq.go).
@@ -755,6 +830,10 @@ type survey struct {
 	// say which logs' on-state readings alone were fitted.
 	interrupted map[string]bool
 	intNotes    []string
+	// leaky holds, for the AC logs in which a fitted mains line too strong
+	// for its distance leaks into the signal, why their groups are not
+	// sound (demodPlan.strongLine).
+	leaky map[string]string
 	// baseGaps are the gaps of the base record that survey readings fell
 	// in (basegaps.go).
 	baseGaps []baseGapUse
@@ -861,6 +940,12 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 	}
 	if o.baseFrame != "" && o.base == "" {
 		return nil, usageErrorf("--base-frame needs --base")
+	}
+	if o.baseDates != "" && o.base == "" {
+		return nil, usageErrorf("--base-date-order needs --base")
+	}
+	if o.baseOffset != "" && o.base == "" {
+		return nil, usageErrorf("--base-time-offset needs --base")
 	}
 	if err := checkSurveyCopies(logs); err != nil {
 		return nil, err
@@ -987,6 +1072,16 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			// A time column rounded to one value (an AC log is refused
 			// with the same words by the demodulation).
 			sv.warnings = append(sv.warnings, path+": "+w+"; the readings were fitted, but nothing that takes their times (a base station's correction, the drift, the order of the walks) can be trusted")
+		} else if step, w := ingest.CoarseStamps(s.Time); w != "" && !sv.ac {
+			// Times to the whole minute: a base correction pairs the
+			// readings with the base up to a step off.
+			if base != nil {
+				w += fmt.Sprintf("; the base correction (--base) paired each reading with the base at its written time, so the pairing may be up to %g s off", step)
+			}
+			sv.warnings = append(sv.warnings, path+": "+w)
+		}
+		if w := ingest.ClockChangeForward(s.Time, s.X, s.Y, s.Group); w != "" {
+			sv.warnings = append(sv.warnings, path+": "+w)
 		}
 		if sv.ac {
 			// Stale stamps put at their place in the sampling
@@ -1483,6 +1578,20 @@ func baseUnitOptions(o *locateOptions, logs []string, bopts []ingest.Option) ([]
 		}
 		bopts = append(append([]ingest.Option(nil), bopts...), ingest.WithFrame(f))
 	}
+	if o.baseDates != "" {
+		d, err := ingest.ParseDateOrder(o.baseDates)
+		if err != nil {
+			return nil, usageErrorf("--base-date-order %q: want dmy (21/04/2026), mdy (4/21/2026) or ymd (2026/04/21)", o.baseDates)
+		}
+		bopts = append(append([]ingest.Option(nil), bopts...), ingest.WithDateOrder(d))
+	}
+	if o.baseOffset != "" {
+		off, err := ingest.ParseTimeOffset(o.baseOffset)
+		if err != nil {
+			return nil, usageErrorf("--base-time-offset %s", strings.TrimPrefix(err.Error(), "ingest: time offset "))
+		}
+		bopts = append(append([]ingest.Option(nil), bopts...), ingest.WithTimeOffset(off))
+	}
 	if len(o.baseUnits) == 0 {
 		return bopts, nil
 	}
@@ -1564,11 +1673,11 @@ func baseReadError(err error) error {
 		return err
 	}
 	msg := err.Error()
-	if !strings.Contains(msg, "--column ") && !strings.Contains(msg, "--unit ") {
+	if !baseFlagHint.MatchString(msg) {
 		return err
 	}
-	msg = strings.ReplaceAll(strings.ReplaceAll(strings.TrimPrefix(msg, "ingest: "), "--column ", "--base-column "), "--unit ", "--base-unit ")
-	return fmt.Errorf("%s (this is the base log, --base: --column and --unit apply to the survey logs only)", msg)
+	msg = baseWording(strings.TrimPrefix(msg, "ingest: "))
+	return fmt.Errorf("%s (this is the base log, --base: --column, --unit and --time-offset apply to the survey logs only, and --date-order applies to the base log only when --base-date-order is not given)", msg)
 }
 
 // baseWording words a warning of the base log's reader: the survey logs'
@@ -1576,11 +1685,12 @@ func baseReadError(err error) error {
 // do (a base log's times without a UTC offset were told to take
 // "--unit time=UTC", which left the warning as it was).
 func baseWording(w string) string {
-	return baseFlagHint.ReplaceAllString(w, "${1}--base-$2 ")
+	return baseFlagHint.ReplaceAllString(w, "${1}--base-$2$3")
 }
 
-// baseFlagHint matches the survey logs' --column and --unit in advice.
-var baseFlagHint = regexp.MustCompile(`(^|[^-a-z])--(column|unit) `)
+// baseFlagHint matches the survey logs' --column, --unit, --date-order
+// and --time-offset in advice.
+var baseFlagHint = regexp.MustCompile(`(^|[^-a-z])--(column|unit|date-order|time-offset)([ ,;)])`)
 
 // zoneShiftHint says when the base record, moved by a whole number of
 // half hours (up to 14 hours either way, the span of the world's time
@@ -1759,9 +1869,10 @@ func zoneWords(base, rover *ingest.Samples, m int, what string) string {
 	// local words the hint for one log read m minutes late (its local
 	// times of zone UTC+m read as UTC); t0 is its first time.
 	local := func(who string, m int, t0 float64) string {
-		give := ""
+		// The survey logs take --time-offset, the base log
+		// --base-time-offset.
+		give := fmt.Sprintf(", or give it with --base-time-offset %s", zone(m))
 		if who == roverName {
-			// The survey logs take --time-offset; the base log does not.
 			give = fmt.Sprintf(", or give it with --time-offset %s", zone(m))
 		}
 		return fmt.Sprintf("are %s times the local times of a zone UTC%s written without their offset (and so read as UTC)? If so, write the offset into them (such as %s%s)%s", who, zone(m), stamp(t0), zone(m), give)
@@ -2122,7 +2233,16 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 	}
 	res, _, warns, hints, err := demodulateACLeftOut(o, s, sv.clipGaps[s.Source]) // acchecks.go
 	if err != nil {
-		return noWindowAdvice(err, o)
+		return noWindowAdvice(err, o, s)
+	}
+	if w, why := (demodPlan{mains: o.mains, fs: logRate(s)}).strongLine(s, res); w != "" {
+		sv.warnings = append(sv.warnings, s.Source+": "+w)
+		if why != "" {
+			if sv.leaky == nil {
+				sv.leaky = map[string]string{}
+			}
+			sv.leaky[s.Source] = why
+		}
 	}
 	if hints.unchecked {
 		sv.unchecked = append(sv.unchecked, uncheckedLog{source: s.Source, lines: hints.lines, atFreq: hints.atFreq})
@@ -2187,8 +2307,9 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 // noWindowAdvice adds to a refusal for want of one whole demodulation
 // window (calibrate.NoWindowError) what the user can do: repair the time
 // column when breaks in it cut the log short, or give a window that fits
-// in the longest run.
-func noWindowAdvice(err error, o *locateOptions) error {
+// in the longest run, saying when a window that short cannot fit a mains
+// line beside the signal apart (no window then fits both).
+func noWindowAdvice(err error, o *locateOptions, s *ingest.Samples) error {
 	var nw *calibrate.NoWindowError
 	if !errors.As(err, &nw) {
 		return err
@@ -2206,7 +2327,7 @@ func noWindowAdvice(err error, o *locateOptions) error {
 		do = append(do, "log without pauses")
 	}
 	if cycles := math.Floor(nw.LongestS*o.freq + 1e-9); o.freq > 0 && cycles >= 3 {
-		do = append(do, fmt.Sprintf("give a window that fits in the longest run, --window %.4g or shorter (%.0f cycles of %g Hz)", cycles/o.freq, cycles, o.freq))
+		do = append(do, fmt.Sprintf("give a window that fits in the longest run, --window %.4g or shorter (%.0f cycles of %g Hz)", cycles/o.freq, cycles, o.freq)+shortClash(o, s, cycles/o.freq))
 	}
 	if len(do) == 0 {
 		return err
@@ -2364,6 +2485,10 @@ feed:
 		dropMisfitRamps(sv.groups)
 		dropLoneRamps(sv.groups)
 		dropWalkRamps(sv.groups)
+		followDrift(sv, set, func(g *group) float64 { return sv.groupNoise(g, o.noise) }, workers)
+		if len(sv.drifts) > 0 {
+			dropMisfitRamps(sv.groups)
+		}
 		for _, g := range sv.groups {
 			looseTurnBound(g)
 		}
@@ -2419,7 +2544,11 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 	} else if w := curvedDriftWarning(o, sv); w != "" {
 		head.Warnings = append(head.Warnings, w)
 	}
-	if w := wanderWarning(sv); w != "" {
+	w := wanderWarning(sv)
+	if d := driftFollowedWarning(sv); d != "" {
+		w = d
+	}
+	if w != "" {
 		// The fits told the frequency's offset from the walk's: the
 		// warning that a log walked one way could not is moot.
 		kept := head.Warnings[:0:0]
@@ -2429,6 +2558,15 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 			}
 		}
 		head.Warnings = append(kept, w)
+		// Phases then compare within groups only (the summary's header).
+		head.Signal.PhasesWithinGroups = true
+	}
+	for _, g := range sv.groups {
+		// Demodulated at an estimate, whose own uncertainty turns the
+		// phase from group to group (its warning says so).
+		if g.estimated {
+			head.Signal.PhasesWithinGroups = true
+		}
 	}
 	for _, l := range sv.looseLogs {
 		var gs []*group
@@ -2452,6 +2590,7 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 		}
 		fits[i].MeasuredNoise = g.measuredNoise(sv.ac)
 		fits[i].Traverse = traverseOf(g.key, g.from, sv.rewalks, sv.reused)
+		fits[i].Log = g.from
 		if len(sv.logs) > 1 {
 			fits[i].Walk = logLabel(g.from, sv.logs)
 			if n := sv.rewalks[rewalkKey(g.from, g.key)]; n > 1 {
@@ -2507,6 +2646,8 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 	baseGapsDocument(doc, sv)
 	// Groups of a log with an interrupted current fitted as it is.
 	interruptedDocument(doc, sv)
+	// Groups of a log beside a strong mains line that leaks (acchecks.go).
+	leakyDocument(doc, sv)
 	// Build puts a misfit every group shares first; an alert that names a
 	// cause (spikes left in, a route fitted as one line) still leads.
 	doc.Warnings = alertsFirst(doc.Warnings, alerts)
@@ -2544,6 +2685,9 @@ func (sv *survey) sameOrigin(o *locateOptions, s *ingest.Samples) (string, error
 	flag, given := o.given["origin"]
 	fixed, isFixed := fixedOrigin(flag)
 	geo := sv.geodetic[s.Source]
+	if err := gridUnderOrigin(s, geo); err != nil {
+		return "", err
+	}
 	if !geo && s.Origin == nil && len(sv.geodetic) > 0 {
 		var named []string
 		for _, p := range sv.logs {
@@ -2937,13 +3081,13 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration, walked 
 	depthCol := doc.DepthReference.Kind != report.DepthBelowGround
 	switch {
 	case !coverKnown:
-		fmt.Fprintf(w, "depths are %s; currents %s, one-sigma uncertainties\n", ref, map[bool]string{true: "RMS with phase angle (∠, " + report.PhaseAngleWords + ")", false: "DC"}[doc.Signal.Mode == report.SignalAC])
+		fmt.Fprintf(w, "depths are %s; currents %s, one-sigma uncertainties\n", ref, map[bool]string{true: "RMS with phase angle (∠, " + report.PhaseWords(doc.Signal) + ")", false: "DC"}[doc.Signal.Mode == report.SignalAC])
 		fmt.Fprintln(w, report.NoCoverSentence)
 	case depthCol:
 		fmt.Fprintf(w, "cover is the depth below the ground: the depth %s less the sensors' %.2f m height above the ground; currents %s, one-sigma uncertainties\n",
-			ref, doc.DepthReference.SensorHeight, map[bool]string{true: "RMS with phase angle (∠, " + report.PhaseAngleWords + ")", false: "DC"}[doc.Signal.Mode == report.SignalAC])
+			ref, doc.DepthReference.SensorHeight, map[bool]string{true: "RMS with phase angle (∠, " + report.PhaseWords(doc.Signal) + ")", false: "DC"}[doc.Signal.Mode == report.SignalAC])
 	default:
-		fmt.Fprintf(w, "cover is the depth %s; currents %s, one-sigma uncertainties\n", ref, map[bool]string{true: "RMS with phase angle (∠, " + report.PhaseAngleWords + ")", false: "DC"}[doc.Signal.Mode == report.SignalAC])
+		fmt.Fprintf(w, "cover is the depth %s; currents %s, one-sigma uncertainties\n", ref, map[bool]string{true: "RMS with phase angle (∠, " + report.PhaseWords(doc.Signal) + ")", false: "DC"}[doc.Signal.Mode == report.SignalAC])
 	}
 	if robustGroups(doc) > 0 {
 		// The sigmas of Huber-weighted fits are large-sample ones (the

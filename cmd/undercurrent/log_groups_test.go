@@ -88,6 +88,10 @@ func TestLocateReusedTraverseNames(t *testing.T) {
 			t.Errorf("group %q: not a traverse of either file", g.Key)
 			continue
 		}
+		// Each group names its log, the path as given.
+		if wantLog := map[bool]string{true: b, false: a}[strings.HasPrefix(g.Key, "stretch-b.csv:")]; g.Log != wantLog {
+			t.Errorf("group %s: log %q, want %q", g.Key, g.Log, wantLog)
+		}
 		if !g.OK || len(g.Sources) == 0 {
 			t.Errorf("group %s: not sound (%v sources)", g.Key, len(g.Sources))
 			continue
@@ -174,6 +178,35 @@ func TestReusedGroupPooledOnlyTogether(t *testing.T) {
 		}
 		if c.renamed && (c.s.Group[0] != "b.csv:T01" || len(w) != 1 || !strings.Contains(w[0], "also in a.csv")) {
 			t.Errorf("%s: group %q, warnings %q: want b.csv:T01 and a.csv named", c.name, c.s.Group[0], w)
+		}
+	}
+	// A log some of whose groups were renamed has its other groups, which
+	// no other log holds, named after it too (a bare T02 beside
+	// b.csv:T01 read as a.csv's; found in review); a group that joined
+	// the earlier log's (the traverse continued in the next file) keeps
+	// the shared name. Fails before every group of such a log was named.
+	for _, c := range []struct {
+		name   string
+		t01    *ingest.Samples
+		want01 string
+		want02 string
+	}{
+		{"T01 another traverse", log("b.csv", 140, 0, 300, 200), "b.csv:T01", "b.csv:T02"},
+		{"T01 continued", log("b.csv", 12, 0, 20, 50), "T01", "T02"},
+	} {
+		b := c.t01
+		t02 := log("b.csv", 300, 0, 600, 100)
+		b.Time, b.X, b.Y = append(b.Time, t02.Time...), append(b.X, t02.X...), append(b.Y, t02.Y...)
+		for range t02.Group {
+			b.Group = append(b.Group, "T02")
+		}
+		first := log("a.csv", 0, 0, 0, 200)
+		w, _ := nameReusedGroups([]string{"a.csv", "b.csv"}, []*ingest.Samples{first, b})
+		if got01, got02 := b.Group[0], b.Group[len(b.Group)-1]; got01 != c.want01 || got02 != c.want02 {
+			t.Errorf("%s: b.csv's groups %q and %q, want %q and %q", c.name, got01, got02, c.want01, c.want02)
+		}
+		if c.want02 != "T02" && (len(w) != 1 || !strings.Contains(w[0], "Its other group T02 is named b.csv:T02 too")) {
+			t.Errorf("%s: warnings %q, want one saying T02 is named b.csv:T02 too", c.name, w)
 		}
 	}
 	// The earlier in time keeps the name whichever log is given first.

@@ -230,7 +230,8 @@ type reusedNames struct {
 // of its own. The name thus stays with the earliest log whatever the
 // order on the command line (before, the first log given kept the bare
 // names, and the names in every output changed with the order; found in
-// review). It returns a warning for each log whose groups were renamed,
+// review). A log with a part renamed so has its other group values, those
+// no other log holds, renamed LOG:VALUE too. It returns a warning for each log whose groups were renamed,
 // and the renamings, for the route to pair walks (traverseOf).
 func nameReusedGroups(logs []string, all []*ingest.Samples) ([]string, reusedNames) {
 	given := reusedNames{value: map[string]string{}, apart: map[string]string{}}
@@ -334,6 +335,35 @@ func nameReusedGroups(logs []string, all []*ingest.Samples) ([]string, reusedNam
 			}
 		}
 	}
+	// A log some of whose groups were renamed has the rest of its groups,
+	// those no other log holds, named after it too (LOG:VALUE): day 2's
+	// T14, next to day2.csv:T13 and after day 1's T13, read as crew 1's
+	// (found in review). Values that joined another log's group keep the
+	// shared name.
+	own := make([][]string, len(all))
+	for k, rs := range renamed {
+		if len(rs) == 0 {
+			continue
+		}
+		_, order := partsOf(k, all[k])
+		for _, v := range order {
+			alone := true
+			for j := range all {
+				if j != k && parts[j][v] != nil {
+					alone = false
+					break
+				}
+			}
+			q := logLabel(logs[k], logs) + ":" + v
+			if !alone || taken[q] {
+				continue
+			}
+			taken[q] = true
+			own[k] = append(own[k], v)
+			given.value[rewalkKey(logs[k], q)] = v
+			given.apart[rewalkKey(logs[k], v)] = q
+		}
+	}
 	var warns []string
 	for k, rs := range renamed {
 		if len(rs) == 0 {
@@ -370,6 +400,10 @@ func nameReusedGroups(logs []string, all []*ingest.Samples) ([]string, reusedNam
 				timed = false
 			}
 		}
+		label := logLabel(logs[k], logs)
+		for _, v := range own[k] {
+			to[v] = label + ":" + v
+		}
 		s := all[k]
 		for i, v := range s.Group {
 			if q, ok := to[v]; ok {
@@ -400,8 +434,17 @@ func nameReusedGroups(logs []string, all []*ingest.Samples) ([]string, reusedNam
 				keeps = "which keep the names, given first (the logs' times are not calendar times)"
 			}
 		}
-		warns = append(warns, fmt.Sprintf("%s: %s also in %s, but %s, %s: taken for another traverse under the same name, and fitted as %s. One group value in several logs is one group where its readings lie within %g m of each other, unless they cover the same ground again more than %g s apart (a cart's two sensors, or a traverse continued in the next file after any pause, are one group; a traverse walked again later is another); to name the groups otherwise, rename them in one of the files",
-			logs[k], what, joinAnd(from), reusedWhere(elsewhere, again, timed, joinAnd(keepers)), keeps, now, reusedApartM, reusedApartS))
+		also := ""
+		if len(own[k]) > 0 {
+			if len(own[k]) == 1 {
+				also = fmt.Sprintf(" Its other group %s is named %s too, so that every group of %s is told by its name", own[k][0], to[own[k][0]], label)
+			} else {
+				also = fmt.Sprintf(" Its other groups %s are named %s (and so on) too, so that every group of %s is told by its name", listNames(own[k]), to[own[k][0]], label)
+			}
+			also += "."
+		}
+		warns = append(warns, fmt.Sprintf("%s: %s also in %s, but %s, %s: taken for another traverse under the same name, and fitted as %s.%s One group value in several logs is one group where its readings lie within %g m of each other, unless they cover the same ground again more than %g s apart (a cart's two sensors, or a traverse continued in the next file after any pause, are one group; a traverse walked again later is another); to name the groups otherwise, rename them in one of the files",
+			logs[k], what, joinAnd(from), reusedWhere(elsewhere, again, timed, joinAnd(keepers)), keeps, now, also, reusedApartM, reusedApartS))
 	}
 	return warns, given
 }

@@ -94,11 +94,13 @@ type groupRamp struct {
 }
 
 // turned returns the phasors ps of windows at times ts turned back by a
-// ramp of hz about mid.
-func turned(ps [][3]complex128, ts []float64, hz, mid float64) [][3]complex128 {
+// ramp of hz about mid, and by a frequency drifting at chirp Hz/s from
+// it (followDrift): the phase 2π (hz τ + chirp τ²/2), τ = t - mid.
+func turned(ps [][3]complex128, ts []float64, hz, chirp, mid float64) [][3]complex128 {
 	out := make([][3]complex128, len(ps))
 	for i, p := range ps {
-		r := cmplx.Rect(1, -2*math.Pi*hz*(ts[i]-mid))
+		tau := ts[i] - mid
+		r := cmplx.Rect(1, -2*math.Pi*(hz+chirp*tau/2)*tau)
 		for k := range p {
 			out[i][k] = p[k] * r
 		}
@@ -213,7 +215,7 @@ func fitRamp(g *group, set *inverse.Settings, noise float64) {
 	}
 	fitAt := func(hz float64, s *inverse.Settings) (*inverse.Result, float64) {
 		p := g.problem(true, noise)
-		p.Phasors = turned(g.phasors, g.times, hz, mid)
+		p.Phasors = turned(g.phasors, g.times, hz, g.chirp, mid)
 		r, err := inverse.FitLines(p, s)
 		if err != nil || r == nil || len(r.Sources) == 0 {
 			return nil, math.Inf(1)

@@ -65,7 +65,9 @@ estimate is made twice, but a window the interruption cut short stays
 partial, and the refused batches fill the dead-letter streams): then
 give --resume, which sends only each sensor's batches after the last
 sample the broker holds for it. With --now the log is shifted by whole minutes, so windows line
-up as in the log; times more than --max-ahead ahead of the clock are held
+up as in the log, and the shift is printed at the start ("times shifted
+by N s"): to send the rest of such a replay, give --shift N --resume in
+place of --now (the advice printed on an interruption says so); times more than --max-ahead ahead of the clock are held
 back until they are not, since the pipeline refuses them (a hold of a
 second or more is said once, with the time it lasts until). With serve
 running, an --asset its site file does not list is refused (the
@@ -191,6 +193,13 @@ func runReplay(ctx context.Context, o *replayOptions, fs *pflag.FlagSet, args []
 		// did: a fractional shift splits every window in two.
 		set.Shift = math.Floor((float64(time.Now().UnixNano())/1e9-first)/60) * 60
 	}
+	// again is how to send the rest of this replay: --now shifts by each
+	// run's clock, so the rest is sent with this run's shift instead.
+	again := "run the same replay again with --resume"
+	if o.now {
+		again = fmt.Sprintf("run the same replay again with --shift %s --resume in place of --now", shiftText(set.Shift))
+		fmt.Fprintf(stderr, "replay: --now: times shifted by %s s (to send the rest of this replay later, give --shift %s --resume in place of --now)\n", shiftText(set.Shift), shiftText(set.Shift))
+	}
 	if t0 := first + set.Shift; t0 < minReplayTime {
 		return fmt.Errorf("%s: the first time, %.3f s, is before 2000-01-01 (Unix seconds): the pipeline refuses such times; make the log start now with --now, or add seconds with --shift", args[0], t0)
 	}
@@ -221,9 +230,21 @@ func runReplay(ctx context.Context, o *replayOptions, fs *pflag.FlagSet, args []
 	if errors.As(err, &stopped) {
 		// Interrupted: say what is stored and how to send the rest, as
 		// for a broker that stopped answering.
-		return &notedInterrupt{err: err, note: stopped.Stored + "; to send the rest, run the same replay again with --resume, which skips each sensor's batches up to the last sample the broker holds for it"}
+		return &notedInterrupt{err: err, note: stopped.Stored + "; to send the rest, " + again + ", which skips each sensor's batches up to the last sample the broker holds for it"}
+	}
+	if err != nil && live.StoreRefused(err) && ctx.Err() == nil && st != nil {
+		// The broker's store is full: say what was stored and how to
+		// send the rest, as for a broker that stopped answering, instead
+		// of the bare "insufficient resources" (err_code 10023).
+		return fmt.Errorf("%w: the broker's store is full (see serve's log: it says what to free or raise); %s; to send the rest once there is room, %s, which skips each sensor's batches up to the last sample the broker holds for it",
+			err, st.StoredText(src.Total), again)
 	}
 	if err != nil {
+		if o.now {
+			// The broker-gone advice names --resume alone, which --now
+			// refuses: give this run's shift.
+			return &rewordedError{err: err, msg: strings.ReplaceAll(err.Error(), "run the same replay again with --resume", again)}
+		}
 		return err
 	}
 	if o.resume {
@@ -240,6 +261,18 @@ func runReplay(ctx context.Context, o *replayOptions, fs *pflag.FlagSet, args []
 	}
 	return nil
 }
+
+// shiftText writes a shift in seconds as --shift takes it back.
+func shiftText(v float64) string { return strconv.FormatFloat(v, 'f', -1, 64) }
+
+// rewordedError is err with its message reworded (Unwrap gives err).
+type rewordedError struct {
+	err error
+	msg string
+}
+
+func (e *rewordedError) Error() string { return e.msg }
+func (e *rewordedError) Unwrap() error { return e.err }
 
 // checkBatchBytes refuses a replay whose largest batch (of each sensor,
 // by samples) encodes to more than limit bytes: the pipeline would

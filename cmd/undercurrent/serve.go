@@ -3,12 +3,17 @@ package main
 import (
 	"cmp"
 	"context"
+	"crypto/sha256"
+	"encoding/hex"
 	"fmt"
 	"io"
 	"log/slog"
 	"net"
 	"os"
+	"os/signal"
+	"path/filepath"
 	"strconv"
+	"syscall"
 	"time"
 
 	"github.com/spf13/pflag"
@@ -53,7 +58,12 @@ in --data) and its MQTT listener, at the addresses in the site file's
 instead. Several serve processes against one broker share the assets: each
 asset is handled by one worker at a time, in order, and another takes over
 within the lease time when a worker dies. SIGTERM or Ctrl-C drains: complete
-windows are published and leases handed back before exit.
+windows are published and leases handed back before exit. Serve does not
+reload: SIGHUP is logged ("no reload: restart serve to apply site-file
+changes") and serve carries on with the settings it started with; an
+edit to the site file while serve runs is logged once at WARN. The start
+line logs the version (and VCS revision), the site file's path and a
+digest of it; /metrics has uc_build_info{version,revision}.
 
 HTTP API (loopback by default): /healthz, /readyz, /metrics,
 /api/v1/assets, /api/v1/assets/ASSET, /api/v1/assets/ASSET/latest,
@@ -116,6 +126,31 @@ func runServe(ctx context.Context, o *serveOptions, args []string, stderr io.Wri
 	if err != nil {
 		return err
 	}
+	sitePath := o.config
+	if abs, err := filepath.Abs(o.config); err == nil {
+		sitePath = abs
+	}
+	siteDigest := fileDigest(o.config)
+	// No reload: a SIGHUP (the usual "reload" signal) would otherwise end
+	// serve at once without a word (rv24d t1).
+	hup := make(chan os.Signal, 1)
+	signal.Notify(hup, syscall.SIGHUP)
+	defer signal.Stop(hup)
+	hctx, hcancel := context.WithCancel(ctx)
+	defer hcancel()
+	go func() {
+		for {
+			select {
+			case <-hctx.Done():
+				return
+			case <-hup:
+				log.Warn("SIGHUP: no reload: restart serve to apply site-file changes; serving on with the settings it started with", "site_file", sitePath, "site_digest", siteDigest)
+			}
+		}
+	}()
+	watch := time.NewTicker(siteWatchEvery)
+	defer watch.Stop()
+	go newSiteWatch(o.config, siteDigest, log).run(hctx, watch.C)
 	if err := checkHTTPAddr(cmp.Or(o.http, site.Service.HTTP)); err != nil {
 		return err
 	}
@@ -168,12 +203,77 @@ func runServe(ctx context.Context, o *serveOptions, args []string, stderr io.Wri
 		return err
 	}
 	defer nc.Close()
-	svc, err := live.New(live.Config{Site: site, Conn: nc, Worker: o.worker, HTTP: o.http, Logger: log, External: o.broker != "", StoreBytes: storeBytes, StoreCheck: storeCheck})
+	rev := vcsRevision()
+	svc, err := live.New(live.Config{Site: site, Conn: nc, Worker: o.worker, HTTP: o.http, Logger: log, External: o.broker != "", StoreBytes: storeBytes, StoreCheck: storeCheck,
+		Version: toolVersion(), Revision: rev})
 	if err != nil {
 		return err
 	}
-	log.Info("serving", "site", site.Name, "assets", len(site.Assets))
+	log.Info("serving", "site", site.Name, "assets", len(site.Assets), "version", toolVersion(), "revision", rev, "site_file", sitePath, "site_digest", siteDigest)
 	return svc.Run(ctx)
+}
+
+// siteWatchEvery is how often serve looks whether its site file changed.
+const siteWatchEvery = 15 * time.Second
+
+// fileDigest is the first 12 hex digits of the SHA-256 of the file at
+// path, or "unreadable" when it cannot be read.
+func fileDigest(path string) string {
+	data, err := os.ReadFile(path)
+	if err != nil {
+		return "unreadable"
+	}
+	sum := sha256.Sum256(data)
+	return hex.EncodeToString(sum[:])[:12]
+}
+
+// siteWatch looks whether the site file at path still has the digest
+// serve started with, and logs a WARN once for each new digest: serve
+// does not reload, so an edit takes effect only at a restart (rv24d: a
+// change while serve ran was not noticed at all). A new digest is taken
+// once two looks in a row find it, so that a file caught half written
+// (an editor's save, a copy) is not reported. A file back to the digest
+// in force is logged at INFO.
+type siteWatch struct {
+	path, digest string
+	log          *slog.Logger
+	// reported is the digest last logged (digest at start); seen the
+	// one the last look found when it was neither.
+	reported, seen string
+}
+
+func newSiteWatch(path, digest string, log *slog.Logger) *siteWatch {
+	return &siteWatch{path: path, digest: digest, log: log, reported: digest}
+}
+
+// run looks at each tick until ctx ends.
+func (w *siteWatch) run(ctx context.Context, tick <-chan time.Time) {
+	for {
+		select {
+		case <-ctx.Done():
+			return
+		case <-tick:
+			w.look()
+		}
+	}
+}
+
+func (w *siteWatch) look() {
+	d := fileDigest(w.path)
+	if d == w.reported {
+		w.seen = ""
+		return
+	}
+	if d != w.seen {
+		w.seen = d // looked at again before it is reported
+		return
+	}
+	w.reported, w.seen = d, ""
+	if d == w.digest {
+		w.log.Info("the site file is back to the one serve started with", "site_file", w.path, "site_digest", d)
+		return
+	}
+	w.log.Warn("the site file changed since serve started: serve does not reload; restart serve to apply it", "site_file", w.path, "site_digest_in_force", w.digest, "site_digest_now", d)
 }
 
 // growStoreEvery is how often serve looks for freed disk space to raise

@@ -81,6 +81,11 @@ func TestLocateTimeOffsetAndDateOrder(t *testing.T) {
 		if err := json.Unmarshal([]byte(out), &doc); err != nil {
 			t.Fatalf("locate --json output is not JSON: %v\n%.500s", err, out)
 		}
+		// Each group names its log's path, which differs between the
+		// copies compared here by design.
+		for i := range doc.Groups {
+			doc.Groups[i].Log = ""
+		}
 		return &doc
 	}
 	want := decode(mustCLI(t, append(args, rfc)...))

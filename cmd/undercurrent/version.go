@@ -19,7 +19,9 @@ func init() {
 		long: `Version prints the version of undercurrent (a module version, or
 "(devel)" for a build from a source tree) and how it was built: the Go
 release, the system and architecture (with its instruction-set level, such
-as GOAMD64=v1) and any build tags (such as noasm). The same build is
+as GOAMD64=v1) and any build tags (such as noasm), then the VCS revision
+it was built from when the build records it ("+modified" for a tree with
+changes; go build -buildvcs=false records none). The same build is
 recorded in results.json (tool.build): builds for other architectures or
 with other tags can differ in the last digits of a result, or at times
 land a fit of several lines in another minimum. "undercurrent --version"
@@ -32,7 +34,11 @@ Examples:
 			if len(args) != 0 {
 				return usageErrorf("version takes no arguments")
 			}
-			fmt.Fprintf(stdout, "undercurrent %s (%s)\n", toolVersion(), buildText())
+			line := fmt.Sprintf("undercurrent %s (%s)", toolVersion(), buildText())
+			if rev := vcsRevision(); rev != "" {
+				line += " revision " + rev
+			}
+			fmt.Fprintln(stdout, line)
 			return nil
 		},
 	})
@@ -80,4 +86,31 @@ func buildOf(bi *debug.BuildInfo, goVer, goos, goarch string) string {
 		parts = append(parts, "tags "+tags)
 	}
 	return strings.Join(parts, ", ")
+}
+
+// vcsRevision is the VCS revision the program was built from, with
+// "+modified" when the tree had changes, or "" when the build did not
+// record it (go build -buildvcs=false, or a build outside a repository).
+func vcsRevision() string {
+	bi, _ := debug.ReadBuildInfo()
+	return revisionOf(bi)
+}
+
+func revisionOf(bi *debug.BuildInfo) string {
+	if bi == nil {
+		return ""
+	}
+	var rev, modified string
+	for _, s := range bi.Settings {
+		switch s.Key {
+		case "vcs.revision":
+			rev = s.Value
+		case "vcs.modified":
+			modified = s.Value
+		}
+	}
+	if rev != "" && modified == "true" {
+		rev += "+modified"
+	}
+	return rev
 }

@@ -68,3 +68,24 @@ func TestVersionAndResultsNameBuild(t *testing.T) {
 		t.Errorf("results.json tool.build %q is not the build version prints: %q", doc.Tool.Build, out)
 	}
 }
+
+// revisionOf gives the VCS revision a build records, marked when the
+// tree had changes, and nothing when none is recorded (-buildvcs=false).
+// Before, the revision was never printed nor logged.
+func TestRevisionOf(t *testing.T) {
+	for _, c := range []struct {
+		settings []debug.BuildSetting
+		want     string
+	}{
+		{nil, ""},
+		{[]debug.BuildSetting{{Key: "vcs.revision", Value: "246b9c7e"}, {Key: "vcs.modified", Value: "false"}}, "246b9c7e"},
+		{[]debug.BuildSetting{{Key: "vcs.revision", Value: "246b9c7e"}, {Key: "vcs.modified", Value: "true"}}, "246b9c7e+modified"},
+	} {
+		if got := revisionOf(&debug.BuildInfo{Settings: c.settings}); got != c.want {
+			t.Errorf("revisionOf(%v) = %q, want %q", c.settings, got, c.want)
+		}
+	}
+	if got := revisionOf(nil); got != "" {
+		t.Errorf("revisionOf(nil) = %q", got)
+	}
+}

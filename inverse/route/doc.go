@@ -76,7 +76,13 @@
 // accounts for their disagreement, each later walk's stations are first
 // brought to the first walk's level by it, its sigma carried, so that
 // the steps see one current along the route (Route.FirstWalk,
-// Placed.FirstWalkCurrent). When one change per walk on one side of a
+// Placed.FirstWalkCurrent). Where the repeats read one level, so that a
+// change and a ratio fit them alike, the change is taken, the currents
+// published at the first walk's level carry the two's difference in
+// their sigmas, and a step between stations of one later walk is also
+// given at that walk's own level and as a share of its current. Repeats
+// whose depths differ between the walks beyond 3 sigmas are reported as
+// KindWalksDepthDiffer. When one change per walk on one side of a
 // point between two sets of repeats accounts for it (a step whose size
 // changed between the walks), the finding is a warning with each walk's
 // step there, and only the stations on that side are brought to the

@@ -43,6 +43,11 @@ const (
 	// on one side of it; a warning), or the current varied during them
 	// (walks.go).
 	KindWalksDiffer Kind = "walks-differ"
+	// KindWalksDepthDiffer is repeats of stations whose depths differ
+	// between the walks beyond 3 sigmas of their mean difference: one
+	// walk's sensors stood at another height than the one given (a
+	// caution, walks.go walksDepthDiffer).
+	KindWalksDepthDiffer Kind = "walks-depth-differ"
 	// KindUnsearched is a stretch of the route inside which two or more
 	// stations in a row give no usable current: no step can be found
 	// there (unsearched.go).

@@ -52,6 +52,14 @@ type Station struct {
 	// another path (a fault, a leak), not as a tee or a source joining,
 	// and no direction of feed is read from its sign.
 	PairNet bool
+	// SummedSplit is true when Current is the sum of two same-way lines
+	// that the fit could not part (the caller took their sum for one
+	// conductor bending or diving under the traverse). Such a sum reads
+	// several per cent off the current either side (a bore's exit bend:
+	// 18.4 A for 20 A, many times its sigma), so a step that only it makes
+	// is reported as information, not as current leaving or joining
+	// (steps.go, hinges).
+	SummedSplit bool
 	// Depth and DepthSigma are the depth below the depth reference and its
 	// one-sigma uncertainty, m.
 	Depth, DepthSigma float64

@@ -280,7 +280,11 @@ func (p *processor) latch(w *window, est *Estimate, alarms []Alarm) []Alarm {
 				var quiet bool
 				switch st.Kind {
 				case AlarmDegraded:
-					quiet = v <= st.Threshold/(WorsenFactor*WorsenFactor)
+					limit := st.Threshold
+					if now, _, ok := p.limitNow(st.Kind, st.Subject); ok && now > 0 {
+						limit = now // max_chi2 changed since it was raised
+					}
+					quiet = v <= limit/(WorsenFactor*WorsenFactor)
 				case AlarmShare, AlarmLowShare:
 					quiet = p.shareQuiet[k] // past its deadband (shareAlarms)
 				}
@@ -328,14 +332,87 @@ func (p *processor) latch(w *window, est *Estimate, alarms []Alarm) []Alarm {
 		if st.Gap > 0 {
 			upTo = fmt.Sprintf("up to a gap of %.4g s in the data before this one (it may have ended in the gap)", st.Gap)
 		}
-		al := p.alarm(w, st.Kind, st.Subject, now, st.Threshold,
-			fmt.Sprintf("%s has cleared: it held from the window starting %s for %d window(s), %s%s", what, unixString(st.Since), st.Windows, upTo, vals))
+		threshold, lead, changed := st.Threshold, "has cleared", ""
+		if limit, key, ok := p.limitNow(st.Kind, st.Subject); ok && !st.Failed && limit != st.Threshold {
+			// The site file in force now gives another limit than the one
+			// the condition was raised against (a restart, or a takeover
+			// by a worker with another site file): the clearing gives the
+			// new one, and says when the value is still past the old.
+			threshold = limit
+			_, judged := p.level[k]
+			if judged && pastLimit(st.Kind, now, st.Threshold) {
+				lead = "is no longer held"
+				changed = fmt.Sprintf("; the limit changed from %.4g to %.4g: no longer judged a condition (%s in the site file in force now; %.4g in this window is still past the former limit, so the condition itself has not ended)",
+					st.Threshold, limit, key, now)
+			} else {
+				changed = fmt.Sprintf("; the limit also changed from %.4g to %.4g since it was raised (%s in the site file in force now)", st.Threshold, limit, key)
+			}
+			if limit == 0 {
+				changed += "; 0 turns the alarm off"
+			}
+		}
+		al := p.alarm(w, st.Kind, st.Subject, now, threshold,
+			fmt.Sprintf("%s %s: it held from the window starting %s for %d window(s), %s%s%s", what, lead, unixString(st.Since), st.Windows, upTo, vals, changed))
 		al.Cleared, al.Windows, al.Since, al.Peak, al.fitFailed, al.AfterGap = true, st.Windows, st.Since, st.Peak, st.Failed, st.Gap
+		if threshold != st.Threshold {
+			al.FormerThreshold = st.Threshold
+		}
 		out = append(out, al)
 	}
 	clear(p.level)
 	clear(p.shareQuiet)
 	return out
+}
+
+// limitNow is the threshold the asset's settings give now for a held
+// condition of kind and subject, with the site-file key it comes from
+// (and its unit); ok is false for the kinds whose threshold the site
+// file does not give as one value (silent, stuck, saturated,
+// implausible).
+func (p *processor) limitNow(kind, subject string) (limit float64, key string, ok bool) {
+	a := p.asset
+	if a == nil {
+		return 0, "", false
+	}
+	switch kind {
+	case AlarmOverCurrent:
+		v, own := a.conductorLimit(subject, "max_current")
+		if own {
+			return v, "conductor " + subject + " max_current, A", true
+		}
+		return v, "[asset.alarms] max_current, A", true
+	case AlarmImbalance:
+		return a.Alarms.MaxImbalance, "[asset.alarms] max_imbalance, A", true
+	case AlarmDegraded, AlarmInconsistent:
+		return a.Alarms.MaxChi2, "[asset.alarms] max_chi2", true
+	case AlarmShare, AlarmLowShare:
+		for i := range a.Conductors {
+			c := &a.Conductors[i]
+			if c.Name != subject {
+				continue
+			}
+			if kind == AlarmShare {
+				if c.MaxShare == nil {
+					return 0, "conductor " + subject + " max_share", true
+				}
+				return *c.MaxShare, "conductor " + subject + " max_share", true
+			}
+			if c.MinShare == nil {
+				return 0, "conductor " + subject + " min_share", true
+			}
+			return *c.MinShare, "conductor " + subject + " min_share", true
+		}
+	}
+	return 0, "", false
+}
+
+// pastLimit reports whether v is past limit in the direction that raises
+// an alarm of kind (below it for a low share, above it for the others).
+func pastLimit(kind string, v, limit float64) bool {
+	if kind == AlarmLowShare {
+		return v < limit
+	}
+	return math.Abs(v) > limit
 }
 
 // worse reports whether v is a worse value of a held condition of kind

@@ -249,6 +249,12 @@ type Alarm struct {
 	// is the start of the window of its onset.
 	Worsened bool    `json:"worsened,omitempty"`
 	Previous float64 `json:"previous,omitempty"`
+	// FormerThreshold, on a cleared record, is the threshold the
+	// condition was raised against when the site file in force now gives
+	// another (Threshold): a condition held across a restart or a
+	// takeover by a worker with other settings may end because the limit
+	// changed, not the readings (the message says which).
+	FormerThreshold float64 `json:"former_threshold,omitempty"`
 	// AfterGap, s, marks a condition's onset or clearing in the first
 	// window it was judged in after a gap in the data of at least the
 	// service's silent_after, while it was held: one that holds again

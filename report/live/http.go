@@ -265,6 +265,17 @@ type AssetInfo struct {
 	// net currents the sensors see, induced currents in bonded metal
 	// around or beside the conductors included.
 	Caution string `json:"caution,omitempty"`
+	// Thresholds are the alarm thresholds this worker's site file gives
+	// the asset; Calibrations the calibration file of each sensor that
+	// has one; SettingsDigest the digest of the asset's settings (its
+	// thresholds, sensors, calibration files' contents, conductors) that
+	// this worker's heartbeat carries. SettingsDiffer lists the other
+	// live workers whose digest for the asset differs: their alarms for
+	// it are judged by other settings (see the WARN in their logs).
+	Thresholds     *AssetThresholds  `json:"thresholds"`
+	Calibrations   map[string]string `json:"calibrations,omitempty"`
+	SettingsDigest string            `json:"settings_digest"`
+	SettingsDiffer []SettingsDiffer  `json:"settings_differ,omitempty"`
 }
 
 func (s *Service) assetInfo(ctx context.Context, a *AssetConfig) (AssetInfo, error) {
@@ -275,7 +286,18 @@ func (s *Service) assetInfo(ctx context.Context, a *AssetConfig) (AssetInfo, err
 	}
 	for _, sn := range a.Sensors {
 		ai.Sensors = append(ai.Sensors, sn.Name)
+		if sn.Calibration != "" {
+			if ai.Calibrations == nil {
+				ai.Calibrations = map[string]string{}
+			}
+			ai.Calibrations[sn.Name] = sn.Calibration
+		}
 	}
+	ai.Thresholds = assetThresholds(a)
+	ai.SettingsDigest = s.digests[a.Name]
+	s.settingsMu.Lock()
+	ai.SettingsDiffer = s.settingsDiffer[a.Name]
+	s.settingsMu.Unlock()
 	for _, c := range a.Conductors {
 		ai.Conductors = append(ai.Conductors, c.Name)
 	}

@@ -115,3 +115,13 @@ func (c *lagCollector) Collect(ch chan<- prometheus.Metric) {
 		ch <- prometheus.MustNewConstMetric(c.desc, prometheus.GaugeValue, now-e, a)
 	}
 }
+
+// buildInfo registers uc_build_info{version,revision}, always 1: which
+// build is running, for a dashboard or an alert on mixed versions.
+func (m *metrics) buildInfo(version, revision string) {
+	g := prometheus.NewGaugeVec(prometheus.GaugeOpts{Name: "uc_build_info",
+		Help: "Always 1; its labels name the running build: version (the module version, \"(devel)\" for a source tree) and revision (the VCS revision it was built from, empty when not recorded)."},
+		[]string{"version", "revision"})
+	g.WithLabelValues(version, revision).Set(1)
+	m.reg.MustRegister(g)
+}

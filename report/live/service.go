@@ -57,6 +57,10 @@ type Config struct {
 	// failed a write; such a stream refuses every write until the broker
 	// is restarted. The worker calls it at each lease round.
 	StoreCheck func() error
+	// Version and Revision name the running build (the module version,
+	// and the VCS revision it was built from, "" when not recorded):
+	// exported as uc_build_info{version,revision} 1.
+	Version, Revision string
 	// OnEstimate, when set, is called after each estimate is acknowledged
 	// with the time since its window closed (load tests).
 	OnEstimate func(e *Estimate, latency time.Duration)
@@ -118,6 +122,16 @@ type Service struct {
 	// storeFailed holds StoreCheck's error while the broker's store has
 	// a stream that failed a write (see checkStore).
 	storeFailed atomic.Pointer[string]
+
+	// digests holds each asset's settings digest (settingsDigest), taken
+	// at New and carried in the heartbeat.
+	digests map[string]string
+	// settingsMu guards settingsWarned (other worker and asset -> the
+	// digest last warned of) and settingsDiffer (asset -> the other live
+	// workers whose digest differs, at the latest lease round).
+	settingsMu     sync.Mutex
+	settingsWarned map[string]string
+	settingsDiffer map[string][]SettingsDiffer
 }
 
 type holding struct {
@@ -152,6 +166,9 @@ func New(cfg Config) (*Service, error) {
 	s := &Service{site: cfg.Site, nc: cfg.Conn, id: cfg.Worker, log: cfg.Logger, met: newMetrics(),
 		newEstimator: cfg.NewEstimator, commissioner: cfg.Commissioner, onEstimate: cfg.OnEstimate,
 		httpAddr: cfg.HTTP, memory: cfg.Memory, external: cfg.External, storeBytes: cfg.StoreBytes, storeCheck: cfg.StoreCheck, held: map[string]*holding{}, leftElsewhere: map[string]bool{}, ready: make(chan struct{})}
+	if cfg.Version != "" || cfg.Revision != "" {
+		s.met.buildInfo(cfg.Version, cfg.Revision)
+	}
 	if s.id == "" {
 		host, _ := os.Hostname()
 		var b [3]byte
@@ -182,8 +199,10 @@ func New(cfg Config) (*Service, error) {
 	// and warn of one whose logs were taken over a year ago (or after
 	// now): the live readings are taken now (Calibration.CheckTaken).
 	now := time.Now()
+	s.digests = map[string]string{}
 	for i := range s.site.Assets {
 		a := &s.site.Assets[i]
+		s.digests[a.Name] = settingsDigest(a)
 		p, err := newProcessor(a, s.id)
 		if err != nil {
 			return nil, err
@@ -338,10 +357,13 @@ func (s *Service) assetOrder() []string {
 // workerBeat is a worker's entry in the workers bucket: when it last
 // beat and the assets its site file lists, so that a worker whose site
 // file lacks an asset that another's lists (a new asset being rolled
-// out) leaves that asset's data to it instead of dead-lettering it.
+// out) leaves that asset's data to it instead of dead-lettering it, and
+// each asset's settings digest (settingsDigest), so that workers whose
+// site files differ for an asset warn of it (compareSettings).
 type workerBeat struct {
-	At     string   `json:"at"`
-	Assets []string `json:"assets"`
+	At       string            `json:"at"`
+	Assets   []string          `json:"assets"`
+	Settings map[string]string `json:"settings,omitempty"`
 }
 
 // ServedAssets reads the running workers' heartbeats (the workers
@@ -395,12 +417,32 @@ func ServedAssets(ctx context.Context, js jetstream.JetStream) (assets []string,
 }
 
 func (s *Service) heartbeat(now time.Time) []byte {
-	b := workerBeat{At: now.UTC().Format(time.RFC3339Nano)}
+	b := workerBeat{At: now.UTC().Format(time.RFC3339Nano), Settings: s.digests}
 	for _, a := range s.site.Assets {
 		b.Assets = append(b.Assets, a.Name)
 	}
 	data, _ := json.Marshal(b)
 	return data
+}
+
+// readBeats reads the other live workers' heartbeats (keys, from the
+// workers bucket) and compares their assets' settings with this worker's.
+func (s *Service) readBeats(ctx context.Context, keys []string) {
+	beats := map[string]workerBeat{}
+	for _, k := range keys {
+		if k == s.id {
+			continue
+		}
+		e, err := s.stores.Workers.Get(ctx, k)
+		if err != nil {
+			return // gone since Keys, or not readable now: judged next round
+		}
+		var b workerBeat
+		if json.Unmarshal(e.Value(), &b) == nil {
+			beats[k] = b
+		}
+	}
+	s.compareSettings(beats)
 }
 
 func (s *Service) leaseRound(ctx context.Context, order []string) {
@@ -420,6 +462,7 @@ func (s *Service) leaseRound(ctx context.Context, order []string) {
 	workers := 1
 	if keys, err := st.Workers.Keys(rctx); err == nil && len(keys) > 0 {
 		workers = len(keys)
+		s.readBeats(rctx, keys)
 	}
 	limit := (len(order) + workers - 1) / workers
 	s.mu.Lock()
@@ -644,6 +687,11 @@ func (s *Service) publishFenced(fenced func() error, msg *nats.Msg, id string) (
 // errCodeInsufficientResources is the JetStream API error code of a write
 // refused because the server's (or the account's) storage is used up.
 const errCodeInsufficientResources = 10023
+
+// StoreRefused reports whether err is a write the broker refused for want
+// of storage (JetStream "insufficient resources", err_code 10023): its
+// store, or the account's share of it, is full.
+func StoreRefused(err error) bool { return storeRefused(err) }
 
 // storeRefused reports whether err is a write refused for want of storage.
 func storeRefused(err error) bool {
