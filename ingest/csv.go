@@ -594,13 +594,8 @@ func (r *csvReader) firstRecordDecimalComma() bool {
 	peek, _ := r.br.Peek(64 << 10)
 	var fields [][]byte
 	for len(peek) > 0 {
-		i := bytes.IndexByte(peek, '\n')
-		ln := peek
-		if i >= 0 {
-			ln, peek = peek[:i], peek[i+1:]
-		} else {
-			peek = nil
-		}
+		var ln []byte
+		ln, peek = cutLine(peek)
 		ln = bytes.TrimRight(ln, "\r")
 		t := bytes.TrimSpace(ln)
 		if len(t) == 0 || (len(r.comment) > 0 && bytes.HasPrefix(t, r.comment)) {

@@ -153,13 +153,8 @@ func (r *csvReader) checkDigitGrouping(first int) error {
 	var fields [][]byte
 	line := first - 1
 	for len(peek) > 0 {
-		i := bytes.IndexByte(peek, '\n')
-		ln := peek
-		if i >= 0 {
-			ln, peek = peek[:i], peek[i+1:]
-		} else {
-			peek = nil
-		}
+		var ln []byte
+		ln, peek = cutLine(peek)
 		line++
 		ln = bytes.TrimRight(ln, "\r")
 		t := bytes.TrimSpace(ln)
@@ -237,4 +232,13 @@ func (r *csvReader) checkDigitGrouping(first int) error {
 	return lineErr(r.name, worst.firstLine, r.pl.header[src], string(worst.first),
 		"%s %s: in this column every number with a %q has exactly three digits after it, beside whole numbers below 1000 such as %s, so read as decimals the column would hold two scales at once (if these really are decimals, give the decimal mark: the option WithDecimalComma(%v), on the command line --decimal-comma=%v)",
 		quoteText(string(worst.first)), groupingAdvice, string(mark), quoteText(string(worst.intExample)), r.decComma, r.decComma)
+}
+
+// cutLine splits the first line (without its newline) from peek's bytes,
+// giving the rest after it; rest is nil on the last line.
+func cutLine(peek []byte) (ln, rest []byte) {
+	if i := bytes.IndexByte(peek, '\n'); i >= 0 {
+		return peek[:i], peek[i+1:]
+	}
+	return peek, nil
 }

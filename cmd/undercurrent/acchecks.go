@@ -1496,21 +1496,10 @@ func leakyDocument(doc *report.Document, sv *survey) {
 	if len(sv.leaky) == 0 {
 		return
 	}
-	from := map[string]string{}
-	for _, g := range sv.groups {
-		from[g.key] = g.from
-	}
-	for i := range doc.Groups {
-		g := &doc.Groups[i]
-		why, ok := sv.leaky[from[g.Key]]
-		if !ok {
-			continue
-		}
-		if g.Problem != "" {
-			g.Problem += "; "
-		}
-		g.Problem += why
-	}
+	problemOnLogs(doc, sv, func(log string) (string, bool) {
+		why, ok := sv.leaky[log]
+		return why, ok
+	})
 }
 
 // shortClash is what noWindowAdvice adds to its advice of windows of w

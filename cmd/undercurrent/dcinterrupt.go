@@ -609,18 +609,28 @@ func interruptedDocument(doc *report.Document, sv *survey) {
 	if len(sv.interrupted) == 0 {
 		return
 	}
+	problemOnLogs(doc, sv, func(log string) (string, bool) {
+		return interruptedProblem, sv.interrupted[log]
+	})
+}
+
+// problemOnLogs adds to the problem of every group of doc what why gives
+// for the log the group was read from (when its ok is true), so that the
+// group is not counted sound.
+func problemOnLogs(doc *report.Document, sv *survey, why func(log string) (string, bool)) {
 	from := map[string]string{}
 	for _, g := range sv.groups {
 		from[g.key] = g.from
 	}
 	for i := range doc.Groups {
 		g := &doc.Groups[i]
-		if !sv.interrupted[from[g.Key]] {
+		w, ok := why(from[g.Key])
+		if !ok {
 			continue
 		}
 		if g.Problem != "" {
 			g.Problem += "; "
 		}
-		g.Problem += interruptedProblem
+		g.Problem += w
 	}
 }

@@ -25,30 +25,7 @@ func TestReplayInterruptSaysWhatWasStored(t *testing.T) {
 	if testing.Short() {
 		t.Skip("starts a broker")
 	}
-	dir, srv, _ := startSimBroker(t)
-	log := simulatedLog(t, dir, "line.csv")
-	nc, err := broker.Connect(srv.ClientURL(), "test", broker.Auth{})
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer nc.Close()
-	js, _ := jetstream.New(nc)
-	setup, cancelSetup := context.WithTimeout(context.Background(), 30*time.Second)
-	defer cancelSetup()
-	if _, err := broker.Setup(setup, js, broker.StreamSettings{Memory: true}); err != nil {
-		t.Fatal(err)
-	}
-	stored := func() uint64 {
-		ds, err := js.Stream(setup, broker.StreamData)
-		if err != nil {
-			return 0
-		}
-		info, err := ds.Info(setup)
-		if err != nil {
-			return 0
-		}
-		return info.State.Msgs
-	}
+	log, srv, stored := replayStreamSetup(t)
 	ctx, cancel := context.WithCancelCause(context.Background())
 	defer cancel(nil)
 	type result struct {
@@ -77,4 +54,36 @@ func TestReplayInterruptSaysWhatWasStored(t *testing.T) {
 	if strings.Count(r.errOut, "\n") != 1 {
 		t.Errorf("stderr %q, want the one line", r.errOut)
 	}
+}
+
+// replayStreamSetup starts a broker with the data stream set up in
+// memory and a simulated log to replay into it; stored counts the
+// messages the stream holds.
+func replayStreamSetup(t *testing.T) (log string, srv *broker.Server, stored func() uint64) {
+	t.Helper()
+	dir, srv, _ := startSimBroker(t)
+	log = simulatedLog(t, dir, "line.csv")
+	nc, err := broker.Connect(srv.ClientURL(), "test", broker.Auth{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Cleanup(nc.Close)
+	js, _ := jetstream.New(nc)
+	setup, cancelSetup := context.WithTimeout(context.Background(), 30*time.Second)
+	t.Cleanup(cancelSetup)
+	if _, err := broker.Setup(setup, js, broker.StreamSettings{Memory: true}); err != nil {
+		t.Fatal(err)
+	}
+	stored = func() uint64 {
+		ds, err := js.Stream(setup, broker.StreamData)
+		if err != nil {
+			return 0
+		}
+		info, err := ds.Info(setup)
+		if err != nil {
+			return 0
+		}
+		return info.State.Msgs
+	}
+	return log, srv, stored
 }

@@ -23,30 +23,7 @@ func TestReplayNowPrintsShiftAndResumeAdvice(t *testing.T) {
 	if testing.Short() {
 		t.Skip("starts a broker")
 	}
-	dir, srv, _ := startSimBroker(t)
-	log := simulatedLog(t, dir, "line.csv")
-	nc, err := broker.Connect(srv.ClientURL(), "test", broker.Auth{})
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer nc.Close()
-	js, _ := jetstream.New(nc)
-	setup, cancelSetup := context.WithTimeout(context.Background(), 30*time.Second)
-	defer cancelSetup()
-	if _, err := broker.Setup(setup, js, broker.StreamSettings{Memory: true}); err != nil {
-		t.Fatal(err)
-	}
-	stored := func() uint64 {
-		ds, err := js.Stream(setup, broker.StreamData)
-		if err != nil {
-			return 0
-		}
-		info, err := ds.Info(setup)
-		if err != nil {
-			return 0
-		}
-		return info.State.Msgs
-	}
+	log, srv, stored := replayStreamSetup(t)
 	ctx, cancel := context.WithCancelCause(context.Background())
 	defer cancel(nil)
 	done := make(chan string, 1)
