@@ -101,7 +101,10 @@ const SigmaNote = "Every fitted sigma (current_sigma_a, depth_sigma_m, phase_sig
 	"conductor, the finite length of a real conductor against the straight infinite line fitted, errors in the " +
 	"sensor positions. Real errors are often many times larger. The route's station_scatter_current_a and " +
 	"station_scatter_depth_m, the robust scatter between neighbouring stations, are a more realistic measure " +
-	"of the spread of a single station's current and depth."
+	"of the spread of a single station's current and depth from station to station, but they cannot see a bias " +
+	"that neighbouring stations share (a bend, a dive or a change of current nearby moves them alike): there " +
+	"the real error can be many times the scatter. Stations whose fit misses its readings by well over the noise, " +
+	"or that lie near a bend or a change of current the route found, have their sigmas widened for it (their notes say so)."
 
 // Tool names the program, its version and how it was built.
 type Tool struct {

@@ -48,8 +48,19 @@ func (d *Document) SetRoute(r *route.Route) {
 		if bd := r.Stations[k].Bend; bd != nil && len(g.Sources) > 0 && g.Sources[0].Kind == KindLine {
 			s := &g.Sources[0]
 			s.DipSigma, s.DepthSigma, s.CurrentSigma = bd.DipSigma, bd.DepthSigma, bd.CurrentSigma
-			s.Notes = append(s.Notes, fmt.Sprintf("dip, depth and current sigmas widened for a bend nearby: the fitted dip %s deg departs from the slope of the neighbouring stations' depths, %s deg (the fit's own sigmas: dip %s deg, depth %s m, current %s A)",
-				PlusMinus(bd.FitDip, bd.FitDipSigma), PlusMinus(bd.RouteDip, bd.RouteDipSigma), route.SigmaText(bd.FitDipSigma), route.SigmaText(bd.FitDepthSigma), route.SigmaText(bd.FitCurrentSigma)))
+			if bd.Kinked {
+				s.Notes = append(s.Notes, fmt.Sprintf("dip and depth uncertainties widened for a bend nearby: the slope of the stations' depths changes from %.3g deg before this one to %.3g deg after it, and the fitted dip, %s deg, may lie anywhere between (the fit's own sigmas: dip %s deg, depth %s m)",
+					bd.SlopeBefore, bd.SlopeAfter, PlusMinus(bd.FitDip, bd.FitDipSigma), route.SigmaText(bd.FitDipSigma), route.SigmaText(bd.FitDepthSigma)))
+			} else {
+				s.Notes = append(s.Notes, fmt.Sprintf("dip, depth and current uncertainties widened for a bend nearby: the fitted dip %s deg departs from the slope of the neighbouring stations' depths, %s deg (the fit's own sigmas: dip %s deg, depth %s m, current %s A)",
+					PlusMinus(bd.FitDip, bd.FitDipSigma), PlusMinus(bd.RouteDip, bd.RouteDipSigma), route.SigmaText(bd.FitDipSigma), route.SigmaText(bd.FitDepthSigma), route.SigmaText(bd.FitCurrentSigma)))
+			}
+		}
+		// A misfit well over the noise, or a current step nearby: the
+		// model's error the route counts in the station's sigmas
+		// (route.ModelDoubt, route.StepNear), in the group's results too.
+		if len(g.Sources) > 0 && g.Sources[0].Kind == KindLine {
+			widenForModel(&g.Sources[0], &r.Stations[k])
 		}
 		// Turn the group's conductors along the route too, so that the
 		// document reads the same way everywhere.
@@ -385,4 +396,24 @@ func severityRank(s string) int {
 		return 1
 	}
 	return 2
+}
+
+// widenForModel widens the sigmas of s, a line source, as the route
+// widened those of its station p for the model's error (p.Model, a misfit
+// well over the noise; p.StepNear, a current step nearby), and notes it.
+// The route's stations of conductor 1 and of every further conductor's
+// track are so widened, and the line each stands for carries the same
+// sigmas in the group's results.
+func widenForModel(s *Source, p *route.Placed) {
+	if md := p.Model; md != nil {
+		s.CurrentSigma, s.DepthSigma = md.Widen(s.CurrentSigma, s.Current), md.Widen(s.DepthSigma, s.Depth)
+		s.DipSigma *= md.Birge
+		s.OffsetSigma *= md.Birge
+		s.AzimuthSigma *= md.Birge
+		s.Notes = append(s.Notes, route.ModelNote(md))
+	}
+	if sn := p.StepNear; sn != nil {
+		s.CurrentSigma, s.DepthSigma = sn.Widen(s.CurrentSigma, s.Current), sn.Widen(s.DepthSigma, s.Depth)
+		s.Notes = append(s.Notes, route.StepNote(sn))
+	}
 }

@@ -813,7 +813,7 @@ func minorMisfitRow(d *Document, minor []int) findingRow {
 	if worst > 0 {
 		msg += fmt.Sprintf(" (at most %s%% of the signal)", sigText(100*worst))
 	}
-	msg += ": the straight-line model is only approximate there (a bend, a change of depth, a change of current or a nearby object, as each note says). Their estimates are used and hold to about the share they miss by, but their ± figures may be too small. A fit that misses by more is a caution."
+	msg += ": the straight-line model is only approximate there (a bend, a change of depth, a change of current or a nearby object, as each note says). Their estimates are used, but the share they miss by shows only part of the model's error: the estimates can be off by about twice it or more, which their ± figures are widened to count. A fit that misses by more is a caution."
 	// The notes' own words, those of one kind (the same words with other
 	// numbers and groups) merged into one item: their numbers, groups and
 	// the range of each value.

@@ -783,7 +783,28 @@ func (d *Document) addTracks(tracks []builtTrack) {
 			}
 		}
 	}
+	groups := map[string]*Group{}
+	for i := range d.Groups {
+		if _, dup := groups[d.Groups[i].Key]; !dup {
+			groups[d.Groups[i].Key] = &d.Groups[i]
+		}
+	}
 	for _, t := range tracks {
+		// The track's stations widened for the model's error (a misfit,
+		// a step nearby): the line each stands for, in its group's
+		// results, as for conductor 1's (SetRoute). A pair's net current
+		// stands for two lines and is left.
+		if !t.pair {
+			for k := range t.route.Stations {
+				p := &t.route.Stations[k]
+				if p.Model == nil && p.StepNear == nil {
+					continue
+				}
+				if s := trackLine(groups[p.Key], t.number); s != nil {
+					widenForModel(s, p)
+				}
+			}
+		}
 		tr := Track{Number: t.number, Offset: t.offset, Route: *d.routeOf(t.route)}
 		tr.Route.PairNet = t.pair
 		d.Conductors = append(d.Conductors, tr)
@@ -845,4 +866,22 @@ func trackPlaces(members []trackSource, gap float64) int {
 		}
 	}
 	return n
+}
+
+// trackLine is g's one line source of conductor n, or nil when g has none
+// or more than one (a sum of lines).
+func trackLine(g *Group, n int) *Source {
+	if g == nil {
+		return nil
+	}
+	var line *Source
+	for j := range g.Sources {
+		if s := &g.Sources[j]; s.Kind == KindLine && s.Conductor == n {
+			if line != nil {
+				return nil
+			}
+			line = s
+		}
+	}
+	return line
 }

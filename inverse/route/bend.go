@@ -53,6 +53,49 @@ const BendMinSlopeDeg = 5.0
 // 0.15 to 0.6 m.
 const BendMinDepthShift = 0.05
 
+// BendExtremeShare is the least change of depth, as a share of a
+// station's own depth, between the station and one of its neighbours at
+// which bendDoubt also compares the slopes of the depths on either side
+// of it: a change of a large share of the depth over one station spacing
+// puts a bend within a few depths of the station, and where the slope
+// before the station differs from the slope after it the bend lies
+// between its neighbours, where its straight line sees it. In review
+// (rv24f, wrenbeck-dive, 20 seeds) T06 and T07, 6 m deep, 3 m from the
+// foot of a dive from 1 m and of the rise back, fitted a dip of 11 deg on
+// a level run (45 of their sigmas) and read 0.6 m shallow (12 sigmas),
+// "sound" on half the seeds: the slope across them, from the 1 m station
+// before the dive to the other 6 m station, is the chord's 12.8 deg, and
+// their fitted dip agrees with it. The slopes to either side, 24 and 0.3
+// deg, do not. A clean straight line, level or dipping, has the same
+// slope on both sides and never passes.
+const BendExtremeShare = 0.5
+
+// sideKink is the spread of dip that a bend between station k's
+// neighbours a and b leaves on its fit: when the depth changes between k
+// and a or b by BendExtremeShare of k's depth or more, and the slopes
+// from a to k and from k to b differ by more than bendK of their combined
+// sigmas plus BendFloorDeg, the true dip at k lies anywhere between those
+// slopes, and the standard deviation of a uniform spread over them,
+// |sa - sb|/sqrt(12), is returned with the two slopes; ok is false
+// otherwise.
+func sideKink(ps []Placed, k, a, b int) (spread, sa, sb float64, ok bool) {
+	if a == k || b == k {
+		return 0, 0, 0, false
+	}
+	z := ps[k].Point[2]
+	lim := BendExtremeShare * math.Abs(ps[k].Depth)
+	if !(lim > 0) || !(math.Abs(z-ps[a].Point[2]) > lim || math.Abs(z-ps[b].Point[2]) > lim) {
+		return 0, 0, 0, false
+	}
+	sa, ssa := slopeDeg(&ps[a], &ps[k])
+	sb, ssb := slopeDeg(&ps[k], &ps[b])
+	d := math.Abs(sa - sb)
+	if !(d > bendK*math.Hypot(ssa, ssb)+BendFloorDeg) {
+		return 0, 0, 0, false
+	}
+	return d / math.Sqrt(12), sa, sb, true
+}
+
 // bendK is the number of combined sigmas by which a station's fitted dip
 // must depart from its neighbours' slope, beyond BendFloorDeg, to be read
 // as a bend nearby.
@@ -80,6 +123,13 @@ type BendDoubt struct {
 	Depth, Current float64
 	// between names the stations whose depths give RouteDip.
 	between string
+	// Kinked is true when the widening is for the change of slope at the
+	// station (sideKink): SlopeBefore is the slope from the station
+	// before (named by before) to this one, SlopeAfter from this one to
+	// the station after, degrees.
+	Kinked                  bool
+	SlopeBefore, SlopeAfter float64
+	before, after           string
 }
 
 // bendValues are the numbers behind a bend-near clause.
@@ -165,10 +215,18 @@ func bendDoubt(ps []Placed, set *Settings) []Finding {
 		fit := fitDipAlong(p)
 		rd, rs := slopeDeg(&ps[a], &ps[b])
 		d := fit - rd
-		if !(math.Abs(rd) >= BendMinSlopeDeg) || !(math.Abs(d) > bendK*math.Hypot(p.DipSigma, rs)+BendFloorDeg) {
+		w := 0.0
+		if math.Abs(rd) >= BendMinSlopeDeg && math.Abs(d) > bendK*math.Hypot(p.DipSigma, rs)+BendFloorDeg {
+			w = math.Abs(d)
+		}
+		kink, sa, sb, kinked := sideKink(ps, k, a, b)
+		kinked = kinked && kink > w
+		if kinked {
+			w = kink
+		}
+		if !(w > 0) {
 			continue
 		}
-		w := math.Abs(d)
 		wr := w * math.Pi / 180
 		reach := p.Depth
 		if n := len(p.Reach); n > 0 {
@@ -179,9 +237,21 @@ func bendDoubt(ps []Placed, set *Settings) []Finding {
 		}
 		bd := &BendDoubt{between: pairText(ps[a].Key, ps[b].Key), Depth: p.Depth, Current: p.Current, FitDip: fit, FitDipSigma: p.DipSigma, RouteDip: rd, RouteDipSigma: rs, Spread: w,
 			FitDepthSigma: p.DepthSigma, FitCurrentSigma: p.CurrentSigma}
+		if kinked {
+			bd.Kinked, bd.SlopeBefore, bd.SlopeAfter = true, sa, sb
+			bd.before, bd.after = ps[a].Key, ps[b].Key
+		}
 		bd.DipSigma = math.Hypot(p.DipSigma, w)
 		bd.DepthSigma = math.Hypot(p.DepthSigma, wr*math.Abs(reach))
 		bd.CurrentSigma = math.Hypot(p.CurrentSigma, wr*math.Abs(p.Current))
+		if kinked {
+			// Beside a change of slope the current is not widened: the
+			// review's T06 and T07 read it within 1% (0.8 of their own
+			// sigmas) while their dip was 11 deg off; widened by W times
+			// it, 0.25 A on 2 A, it hid the anomaly the summed splits
+			// beside them are (report TestScatterLeavesOutAnomalies).
+			bd.CurrentSigma = p.CurrentSigma
+		}
 		p.Bend = bd
 		out = append(out, Finding{
 			Kind:     KindBendNear,
@@ -210,6 +280,11 @@ func pairText(a, b string) string { return "from " + a + " to " + b }
 // bendClause words a BendDoubt for a crew, the neighbouring stations
 // named by between.
 func bendClause(bd *BendDoubt, between string) string {
+	if bd.Kinked {
+		return fmt.Sprintf("the conductor bends near here: the depths slope at %.3g deg from %s to here and at %.3g deg from here to %s, so the straight line fitted here (dip %s deg) is tilted by the conductor's turn nearby; its dip and depth are less certain than the fit alone says (sigmas widened to dip ± %s deg, depth ± %s m)",
+			bd.SlopeBefore, bd.before, bd.SlopeAfter, bd.after, PlusMinus(bd.FitDip, bd.FitDipSigma),
+			SigmaText(bd.DipSigma), SigmaText(bd.DepthSigma))
+	}
 	return fmt.Sprintf("the conductor bends near here: the fit gives a dip of %s deg, but the depths of the stations %s slope at %s deg, so the straight line fitted here is tilted by the conductor's turn nearby; its dip, depth and current are less certain than the fit alone says (sigmas widened to dip ± %s deg, depth ± %s m, current ± %s A)",
 		PlusMinus(bd.FitDip, bd.FitDipSigma), between, PlusMinus(bd.RouteDip, bd.RouteDipSigma),
 		SigmaText(bd.DipSigma), SigmaText(bd.DepthSigma), SigmaText(bd.CurrentSigma))

@@ -127,7 +127,8 @@ func pm(v, s float64) string {
 // poorCover reports whether station p's fit is marked poor as quality
 // marks it: a problem with it, or a reduced chi-square over the poor-fit
 // limit where the misfit is not a minor share of the signal (the demo's
-// T13 misses 0.43% of its signal, and its estimates hold to about that).
+// T13 misses 0.43% of its signal; its sigmas are widened for it,
+// modelDoubt).
 func poorCover(p *Placed, set *Settings) bool {
 	if p.Problem != "" {
 		return true

@@ -55,8 +55,8 @@ func quality(ps []Placed, set *Settings, steps []Finding) []Finding {
 				From:     p.Chainage, To: p.Chainage,
 				Position: p.Point,
 				Keys:     []string{p.Key},
-				Message: fmt.Sprintf("fit at %s misses %.3g nT RMS of a %.0f nT signal (%.2g%%), %.3g %s: the straight-line model is only approximate here (%s); the estimates hold to about that fraction, but their uncertainties may be too small (reduced chi-square %.3g)",
-					at(p, len(ps) == 1), p.RMS, p.Signal, 100*p.RMS/p.Signal, math.Sqrt(chi), MisfitNoiseWords, orDefault(bend, orDefault(stepCause(p, steps), "a bend, a change of depth or a nearby object")), chi),
+				Message: fmt.Sprintf("fit at %s misses %.3g nT RMS of a %.0f nT signal (%.2g%%), %.3g %s: the straight-line model is only approximate here (%s); the misfit shows only the part of the model's error that the line could not take up, so the estimates can be off by about %.0f times that share or more%s (reduced chi-square %.3g)",
+					at(p, len(ps) == 1), p.RMS, p.Signal, 100*p.RMS/p.Signal, math.Sqrt(chi), MisfitNoiseWords, orDefault(bend, orDefault(stepCause(p, steps), "a bend, a change of depth or a nearby object")), ModelErrFactor, modelWidened(p), chi),
 				Values: vals,
 			})
 			continue
@@ -425,4 +425,13 @@ func stepCause(p *Placed, steps []Finding) string {
 		return fmt.Sprintf("most likely the change of current the current-step finding places %s: the current changes along the conductor there, which one straight line does not follow; else a bend, a change of depth or a nearby object", where)
 	}
 	return ""
+}
+
+// modelWidened says how a station's sigmas were widened for its misfit
+// (modelDoubt), "" when they were not.
+func modelWidened(p *Placed) string {
+	if p.Model == nil {
+		return ", which its uncertainties do not count"
+	}
+	return fmt.Sprintf("; its uncertainties are widened to count it (current ± %s A, depth ± %s m)", SigmaText(p.CurrentSigma), SigmaText(p.DepthSigma))
 }

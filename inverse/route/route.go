@@ -63,6 +63,12 @@ type Placed struct {
 	// of its neighbours' depths (bend.go): DipSigma, DepthSigma and
 	// CurrentSigma are then widened, and Bend keeps the fit's own.
 	Bend *BendDoubt
+	// Model is set when the station's fit misses its readings by more
+	// than ModelChi2 (modelerr.go), StepNear when a current step lies near
+	// it: CurrentSigma and DepthSigma (and for Model DipSigma) are then
+	// widened, and each keeps the sigmas before it.
+	Model    *ModelDoubt
+	StepNear *StepNear
 }
 
 // Route is the result of Build.
@@ -196,6 +202,14 @@ func Build(stations []Station, set *Settings) (*Route, error) {
 	// neighbours' depths: a bend nearby tilts its line (bend.go).
 	r.Findings = append(r.Findings, bendDoubt(r.Stations, set)...)
 	r.Findings = append(r.Findings, cover(r.Stations, set)...)
+	// The error a fit's misfit shows, and a step's field nearby, which
+	// the fit's sigmas do not count (modelerr.go). After the cover check:
+	// a poor fit's cover finding says its cover may be the misfit's, and
+	// its shallow-cover verdict keeps the fit's own sigma (widened, a
+	// 1.09 m cover over a conductor 1.3 m down, beside a stronger
+	// crossing, read "may be less than the 0.90 m minimum").
+	modelDoubt(r.Stations)
+	stepDoubt(r.Stations, st)
 	for _, f := range quality(r.Stations, set, st) {
 		if f.Kind == KindPoorFit && len(f.Keys) == 1 && notes[f.Keys[0]] != "" {
 			f.Message += notes[f.Keys[0]]

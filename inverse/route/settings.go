@@ -65,8 +65,11 @@ type Settings struct {
 	// MinorMisfit is the largest RMS residual, as a fraction of the
 	// station's Signal, at which a fit that fails MaxReducedChi2 is still
 	// reported as information rather than a caution: the straight-line
-	// model is only approximate there (a bend, a change of depth), but the
-	// estimates hold to about that fraction. Zero means 0.01; a negative
+	// model is only approximate there (a bend, a change of depth): the
+	// estimates can be off by about ModelErrFactor times that fraction
+	// (the misfit shows only the part of the model's error the line could
+	// not take up), which the station's widened sigmas count (modelDoubt).
+	// Zero means 0.01; a negative
 	// value makes every such fit a caution.
 	MinorMisfit float64
 }

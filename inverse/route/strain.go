@@ -121,10 +121,11 @@ func markStrained(ps []Placed, set *Settings) {
 // residuals correlated along the readings (Station.Widening): the shift's
 // sensitivity |a| = sigma_I / sigma is that of independent readings.
 func unwidened(p *Placed) float64 {
+	s := p.fitCurrentSigma()
 	if p.Widening > 1 && !p.whitened {
-		return p.CurrentSigma / p.Widening
+		return s / p.Widening
 	}
-	return p.CurrentSigma
+	return s
 }
 
 // unwidenPoor takes the sigmas of each poor fit (not clean: a problem, or
@@ -188,6 +189,19 @@ func fitSigmas(p *Placed) (current, depth float64) {
 func (p *Placed) RouteSigma() float64 {
 	if p.routeWhite {
 		return unwidened(p)
+	}
+	return p.fitCurrentSigma()
+}
+
+// fitCurrentSigma is the station's current sigma before the route
+// widened it for the model's error or a step nearby (modelerr.go); the
+// bend's widening (bend.go) is kept.
+func (p *Placed) fitCurrentSigma() float64 {
+	switch {
+	case p.Model != nil:
+		return p.Model.FitCurrentSigma
+	case p.StepNear != nil:
+		return p.StepNear.FitCurrentSigma
 	}
 	return p.CurrentSigma
 }
