@@ -652,10 +652,8 @@ func splitSteps(st []Finding, sc *walkScaling) {
 		if f.Kind != KindCurrentStep || !(f.From < sc.split.at && sc.split.at < f.To) {
 			continue
 		}
-		size, okS := findingValue(f, "step")
-		before, okB := findingValue(f, "current before")
-		after, okA := findingValue(f, "current after")
-		if !okS || !okB || !okA {
+		size, before, after, ok := stepValues(f)
+		if !ok {
 			continue
 		}
 		var own []string
@@ -714,10 +712,8 @@ func ownLevelSteps(st []Finding, sc *walkScaling, ps []Placed) {
 		if !one || name == "" || wl == nil || wl == sc.ref || wl.sets == 0 || !(wl.ratio > 0) {
 			continue
 		}
-		size, okS := findingValue(f, "step")
-		before, okB := findingValue(f, "current before")
-		after, okA := findingValue(f, "current after")
-		if !okS || !okB || !okA {
+		size, before, after, ok := stepValues(f)
+		if !ok {
 			continue
 		}
 		b, a := before.Value+wl.delta, after.Value+wl.delta
@@ -740,6 +736,15 @@ func ownLevelSteps(st []Finding, sc *walkScaling, ps []Placed) {
 }
 
 // findingValue returns f's value of that name.
+// stepValues gives a current-step finding's step and its currents before
+// and after; ok is false when any of the three is missing.
+func stepValues(f *Finding) (size, before, after Value, ok bool) {
+	size, okS := findingValue(f, "step")
+	before, okB := findingValue(f, "current before")
+	after, okA := findingValue(f, "current after")
+	return size, before, after, okS && okB && okA
+}
+
 func findingValue(f *Finding, name string) (Value, bool) {
 	for _, v := range f.Values {
 		if v.Name == name {
