@@ -1,7 +1,6 @@
 package main
 
 import (
-	"encoding/json"
 	"os"
 	"path/filepath"
 	"reflect"
@@ -31,19 +30,7 @@ func TestBaseLogLocalTimes(t *testing.T) {
 	if b, _ := os.ReadFile(baseDMY); !strings.Contains(string(b), "/2026 ") {
 		t.Fatalf("base copy has no day-first dates:\n%.300s", b)
 	}
-	decode := func(out string) *resultDoc {
-		t.Helper()
-		var doc resultDoc
-		if err := json.Unmarshal([]byte(out), &doc); err != nil {
-			t.Fatalf("locate --json output is not JSON: %v\n%.500s", err, out)
-		}
-		// Each group names its log's path, which differs between the
-		// copies compared here by design.
-		for i := range doc.Groups {
-			doc.Groups[i].Log = ""
-		}
-		return &doc
-	}
+	decode := func(out string) *resultDoc { return decodeOffLog(t, out) }
 	args := []string{"locate", "--json", "--group-by", "group", "--time-offset", "+02:00", "--date-order", "dmy"}
 	want := decode(mustCLI(t, append(args, "--base", base, walk)...))
 	got := decode(mustCLI(t, append(args, "--base", baseDMY, "--base-time-offset", "+02:00", walk)...))

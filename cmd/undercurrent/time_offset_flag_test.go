@@ -75,19 +75,7 @@ func TestLocateTimeOffsetAndDateOrder(t *testing.T) {
 	iso := copyAs("iso", func(t time.Time) string { return t.In(cest).Format("2006-01-02T15:04:05.000") })
 
 	args := []string{"locate", "--json", "--group-by", "group", "--base", base}
-	decode := func(out string) *resultDoc {
-		t.Helper()
-		var doc resultDoc
-		if err := json.Unmarshal([]byte(out), &doc); err != nil {
-			t.Fatalf("locate --json output is not JSON: %v\n%.500s", err, out)
-		}
-		// Each group names its log's path, which differs between the
-		// copies compared here by design.
-		for i := range doc.Groups {
-			doc.Groups[i].Log = ""
-		}
-		return &doc
-	}
+	decode := func(out string) *resultDoc { return decodeOffLog(t, out) }
 	want := decode(mustCLI(t, append(args, rfc)...))
 	if len(want.Groups) != 7 {
 		t.Fatalf("RFC 3339 copy: %d groups, want 7", len(want.Groups))
@@ -155,4 +143,18 @@ func TestTimeOffsetFlagRefusals(t *testing.T) {
 			}
 		}
 	}
+}
+
+// decodeOffLog reads locate --json output, leaving out each group's log
+// path, which differs between copies of one log compared by design.
+func decodeOffLog(t *testing.T, out string) *resultDoc {
+	t.Helper()
+	var doc resultDoc
+	if err := json.Unmarshal([]byte(out), &doc); err != nil {
+		t.Fatalf("locate --json output is not JSON: %v\n%.500s", err, out)
+	}
+	for i := range doc.Groups {
+		doc.Groups[i].Log = ""
+	}
+	return &doc
 }
