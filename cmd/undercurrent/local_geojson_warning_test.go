@@ -93,19 +93,7 @@ func TestLocateWarnsGeoJSONWithoutOrigin(t *testing.T) {
 // grid's and to give latitude and longitude. Fails before the change.
 func TestLocateWarnsGridCoordinates(t *testing.T) {
 	dir := t.TempDir()
-	sc, _ := scenario(t, "single-line.toml")
-	s, err := simulate.Simulate(sc)
-	if err != nil {
-		t.Fatal(err)
-	}
-	for i := range s.X {
-		s.X[i] += 530000
-		s.Y[i] += 180000
-	}
-	grid := filepath.Join(dir, "grid.csv")
-	if err := ingest.WriteSamples(grid, s); err != nil {
-		t.Fatal(err)
-	}
+	grid := gridLog(t, dir, "grid.csv", nil)
 	summary := mustCLI(t, "locate", "--group-by", "group", "-o", filepath.Join(dir, "out"), grid)
 	for _, want := range []string{"look like a projected grid", "convert the positions to latitude and longitude", "about 530"} {
 		if !strings.Contains(summary, want) {
@@ -131,20 +119,7 @@ func TestLocateWarnsGridCoordinates(t *testing.T) {
 // reading, tens of metres across, is not refused (the control above).
 func TestLocateRefusesGridCoordinatesUnderOrigin(t *testing.T) {
 	dir := t.TempDir()
-	sc, _ := scenario(t, "single-line.toml")
-	s, err := simulate.Simulate(sc)
-	if err != nil {
-		t.Fatal(err)
-	}
-	for i := range s.X {
-		s.X[i] += 530000
-		s.Y[i] += 180000
-	}
-	s.Origin = &ingest.Geodetic{Lat: 52.4512, Lon: 0.1738, H: 1.5}
-	grid := filepath.Join(dir, "grid-origin.csv")
-	if err := ingest.WriteSamples(grid, s); err != nil {
-		t.Fatal(err)
-	}
+	grid := gridLog(t, dir, "grid-origin.csv", &ingest.Geodetic{Lat: 52.4512, Lon: 0.1738, H: 1.5})
 	code, out, errOut := cli(t, "locate", "--group-by", "group", "-o", filepath.Join(dir, "out"), grid)
 	if code == 0 {
 		t.Fatalf("locate of grid coordinates under an origin line: exit 0\n%s", out)
@@ -163,4 +138,28 @@ func TestLocateRefusesGridCoordinatesUnderOrigin(t *testing.T) {
 			t.Errorf("inspect lacks %q:\n%s", want, insp)
 		}
 	}
+}
+
+// gridLog writes single-line.toml's simulated log with its positions moved
+// 530 km east and 180 km north, as a projected grid's eastings and
+// northings, under origin (none when nil), and gives its path.
+func gridLog(t *testing.T, dir, name string, origin *ingest.Geodetic) string {
+	t.Helper()
+	sc, _ := scenario(t, "single-line.toml")
+	s, err := simulate.Simulate(sc)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i := range s.X {
+		s.X[i] += 530000
+		s.Y[i] += 180000
+	}
+	if origin != nil {
+		s.Origin = origin
+	}
+	path := filepath.Join(dir, name)
+	if err := ingest.WriteSamples(path, s); err != nil {
+		t.Fatal(err)
+	}
+	return path
 }
