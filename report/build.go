@@ -64,6 +64,15 @@ type Fit struct {
 	// Log is the path, as given, of the survey log the group's readings
 	// come from (Group.Log); empty when not known.
 	Log string
+	// SensorHeight is the height above the ground, m, of the sensors of
+	// this fit's log where it differs from BuildSettings.SensorHeight
+	// (logs of crews that carried their sensors at different heights);
+	// zero means BuildSettings.SensorHeight. It needs depths below the
+	// sensors and BuildSettings.SensorHeight above zero, the datum: Build
+	// refers the fit's depths to the plane that height above the ground
+	// (logheight.go), so that cover = depth - BuildSettings.SensorHeight
+	// holds for this fit as for the others.
+	SensorHeight float64
 	// Traverse names the traverse the group walks where the caller knows
 	// it (the group value its walks share), for the route to pair a
 	// station's walks (route.Station.Traverse); empty when not known.
@@ -74,6 +83,9 @@ type Fit struct {
 	// (referenceLevelWarnings): a line above that level is not taken for
 	// a fault of the data.
 	levelOff float64
+	// depthShift is SensorHeight less the datum, m, by which toDatum
+	// moved the fit's depths (logheight.go); 0 when it moved none.
+	depthShift float64
 
 	object *route.Object // the magnetised object found by checkDipoles
 	// surface is an object checkDipoles would have accepted but that lies
@@ -333,10 +345,13 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 				fits[i].sumSplit = true
 			}
 		}
-		// With --sensor-height, depths below the sensors' height over
-		// each line (groundlevel.go), for the refits too.
+		// With --sensor-height, depths of a log whose sensors stood at
+		// another height referred to the datum (logheight.go), then
+		// below the sensors' height over each line (groundlevel.go),
+		// for the refits too.
 		if rs.SensorHeight > 0 {
 			for i := range fits {
+				toDatum(&fits[i], rs.SensorHeight)
 				groundAtLines(&fits[i])
 			}
 		}
@@ -427,6 +442,10 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 		d.DepthReference.PerGroup = perGroupReference(fits)
 	}
 	d.Notes = append(d.Notes, sensorHeightNotes(fits, rs.SensorHeight)...)
+	if n := logHeightNote(fits, rs.SensorHeight); n != "" {
+		d.Notes = append(d.Notes, n)
+		d.DepthReference.PerLog = true
+	}
 	d.Warnings = append(d.Warnings, levelWarn...)
 	shared := sharedMisfit(fits, &bs, rs)
 	if shared != "" {
@@ -914,6 +933,9 @@ func circuitPartner(f *Fit, ac, pairRoute bool) int {
 func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute bool, sensorHeight float64) (Group, route.Station) {
 	pts := f.Problem.Points
 	g := Group{Key: f.Key, Log: f.Log, Points: len(pts), Centroid: centroid(pts), Sources: []Source{}}
+	if f.depthShift != 0 {
+		g.SensorHeight = f.SensorHeight
+	}
 	st := route.Station{Key: f.Key, Point: g.Centroid, AC: ac, Dipole: f.Dipole, Walk: f.Walk, Start: f.Start, Traverse: f.Traverse}
 	if f.Result == nil {
 		g.Problem = "the fit failed: " + f.Err.Error()

@@ -32,6 +32,9 @@ func checkFits(fits []Fit, bs *BuildSettings) error {
 	if err != nil {
 		return err
 	}
+	if err := checkLogHeights(fits, bs, below); err != nil {
+		return err
+	}
 	if bs != nil && bs.MinCover > 0 && !below && !(bs.SensorHeight > 0) {
 		return fmt.Errorf("report: MinCover %g m needs to know where the ground is: the fits' depths are below the sensors and BuildSettings.SensorHeight is 0 (unknown); give SensorHeight (the sensors' height above ground) or fit with inverse.Settings.ReferenceZ (the ground's height)", bs.MinCover)
 	}

@@ -1688,7 +1688,8 @@ func searchFrom(f *Fit, from []*inverse.SourceEstimate, at *[3]float64) *dipoleS
 		for _, q := range p.Points {
 			m += q[2]
 		}
-		zref = m / float64(len(p.Points))
+		// Referred to the datum as the fit's lines are (logheight.go).
+		zref = m/float64(len(p.Points)) - f.depthShift
 	}
 	o := &route.Object{Point: pos, PointSigma: sig, Depth: zref - pos[2], DepthSigma: sig[2], Evidence: ds.gain}
 	mom, momSig, momPhase := moment(p, r, len(lines))
@@ -1815,7 +1816,7 @@ func searchAlone(f *Fit, start [3]float64) *dipoleSearch {
 	}
 	zref := res.ReferenceZ
 	if res.DepthReference != "ReferenceZ" {
-		zref = zm
+		zref = zm - f.depthShift // the datum's (logheight.go)
 	}
 	mom, momSig, momPhase := moment(p, r, 0)
 	if momAxisSigma != ([3]float64{}) {

@@ -248,6 +248,13 @@ type DepthReference struct {
 	// each line (groundAtLines). Z is then the first group's mean sensor
 	// height only; each group's own is its Centroid's up.
 	PerGroup bool `json:"per_group,omitempty"`
+	// PerLog is true when the logs' sensors stood at different heights
+	// above the ground (--sensor-height LOG=H): SensorHeight is then the
+	// datum, the groups whose sensors stood at another height give it
+	// (Group.SensorHeight), and their depths are referred to the plane
+	// SensorHeight above the ground, so cover = depth - SensorHeight
+	// holds for every group.
+	PerLog bool `json:"per_log,omitempty"`
 }
 
 // Signal modes.
@@ -294,6 +301,14 @@ type Group struct {
 	// from could not be read from the outputs where its name stood bare
 	// beside another log's (found in review).
 	Log string `json:"log,omitempty"`
+	// SensorHeight is the height above the ground, m, of the sensors of
+	// the group's log where it differs from DepthReference.SensorHeight
+	// (--sensor-height LOG=H): the group's depths are then referred to
+	// the plane DepthReference.SensorHeight above the ground, not to its
+	// own sensors, which stood SensorHeight above it (depth below them =
+	// depth + SensorHeight - DepthReference.SensorHeight); absent
+	// otherwise.
+	SensorHeight float64 `json:"sensor_height_m,omitempty"`
 	// Points is the number of readings fitted.
 	Points int `json:"points"`
 	// Chainage is the group's distance along the route, m; nil without

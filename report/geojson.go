@@ -197,6 +197,10 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 			}
 			props["depth_reference"] = d.DepthReference.Kind
 			props["depth_note"] = depthNote
+			if g.SensorHeight > 0 {
+				props["sensor_height_m"] = json.Number(fix(g.SensorHeight, 3))
+				props["depth_note"] = groupDatumNote(d, &g)
+			}
 			if r := d.conductorRoute(sourceConductor(d, &g, i, &s)); r != nil {
 				putScatter(props, r)
 			}
@@ -927,6 +931,14 @@ func (d *Document) geoDepthNote() string {
 	}
 	return "depth_m is the depth below the sensors, not below the ground: their height above the ground was not given, " +
 		"so the cover (the depth below ground) is less than depth_m by that height and is not computed."
+}
+
+// groupDatumNote is the depth note of a group whose log's sensors stood at
+// another height than the datum (Group.SensorHeight, logheight.go).
+func groupDatumNote(d *Document, g *Group) string {
+	h, H := g.SensorHeight, d.DepthReference.SensorHeight
+	return fmt.Sprintf("depth_m is referred to the datum %s m above the ground, not to this log's sensors, which stood %s m above it (sensor_height_m; the depth below them is depth_m %s %s m), so cover_m, the depth below ground, is %s m less than depth_m.",
+		fix(H, 2), fix(h, 2), map[bool]string{true: "plus", false: "less"}[h > H], fix(math.Abs(h-H), 2), fix(H, 2))
 }
 
 // failedFitFeature is the Point of group g whose fit failed (Group.OK

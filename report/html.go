@@ -258,6 +258,10 @@ func newView(d *Document) (*view, error) {
 	_, groundKnown := d.cover(0)
 	v.CoverNA = !groundKnown
 	v.CoverHead, v.DepthHead, v.DepthCol = "Cover (m)", "Depth below sensors (m)", true
+	if d.DepthReference.PerLog {
+		// Not below every group's own sensors (logheight.go).
+		v.DepthHead = "Depth below datum (m)"
+	}
 	switch {
 	case d.DepthReference.Kind == DepthBelowGround:
 		v.CoverHead, v.DepthCol = "Cover: depth below ground (m)", false
@@ -418,7 +422,9 @@ func depthRefText(d *Document) string {
 			s = fmt.Sprintf("below each traverse's own sensors (their mean height, up = %s to %s m from traverse to traverse; with the sensor height given, the sensors' height where they pass over each line when the logged heights differ there), not one height for the survey", fix(lo, 2), fix(hi, 2))
 		}
 	}
-	if h := d.DepthReference.SensorHeight; h > 0 {
+	if h := d.DepthReference.SensorHeight; h > 0 && d.DepthReference.PerLog {
+		s += fmt.Sprintf("; the logs' sensors stood at different heights above the ground, so the depths are referred to one datum %.2f m above the ground (for a log whose sensors stood at another height, its depths below them less that height plus %.2f m; see the notes), and cover = depth − %.2f m", h, h, h)
+	} else if h > 0 {
 		s += fmt.Sprintf("; sensors %.2f m above ground, so cover = depth − %.2f m", h, h)
 	} else {
 		s += "; sensor height above ground not given, so cover is not computed"

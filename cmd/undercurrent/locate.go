@@ -72,16 +72,21 @@ type locateOptions struct {
 	coverCode       string
 	referenceZ      float64
 	hasRefZ         bool
-	sensorHeight    float64
-	groundSigma     float64
-	noise           float64
-	rangeNT         float64 // --range-nt: the magnetometer's range, nT (clipped.go); 0 none given
-	robust          bool
-	despike         bool
-	stepK           float64
-	minStep         float64
-	title           string
-	workers         int
+	// sensorHeight is the bare --sensor-height, for every log not named
+	// in heightPerLog (--sensor-height LOG=H, perlog.go); sensorHeights
+	// the flag's values as given.
+	sensorHeight  float64
+	sensorHeights []string
+	heightPerLog  []perLogValue
+	groundSigma   float64
+	noise         float64
+	rangeNT       float64 // --range-nt: the magnetometer's range, nT (clipped.go); 0 none given
+	robust        bool
+	despike       bool
+	stepK         float64
+	minStep       float64
+	title         string
+	workers       int
 	// csvDecimalComma is --csv-decimal-comma: results.csv and findings.csv
 	// with semicolons and decimal commas (report.CSVOptions).
 	csvDecimalComma bool
@@ -153,7 +158,7 @@ func (o *locateOptions) setFlags(fs *pflag.FlagSet) {
 	fs.Float64Var(&o.minCover, "min-cover", 0, "report cover shallower than `M` metres (needs a ground reference: --sensor-height or --reference-z)")
 	fs.StringVar(&o.coverCode, "cover-code", "", "the code or practice the minimum cover comes from, quoted in the report (\"NEC Table 300.5\")")
 	fs.Float64Var(&o.referenceZ, "reference-z", 0, "report depths below the ground surface at up = `Z` metres, one flat level for the whole survey, instead of below the sensors' mean height; up is the log's local frame (on a latitude/longitude/height log, relative to the origin's height, by default the first reading's), so a ground height of G in the log's datum is Z = G minus the origin's height; warned when it lies above the sensors or does not fit a route whose sensors climb")
-	fs.Float64Var(&o.sensorHeight, "sensor-height", 0, "the sensors were carried `H` metres above the ground (cover = depth - H); with several sensors at different heights, H is the mean height of all of them; with heights in the log, the ground over each line is taken as the sensors' height where they pass over it minus H, else the ground is taken as level under each traverse")
+	fs.StringArrayVar(&o.sensorHeights, "sensor-height", nil, "the sensors were carried `H` metres above the ground (cover = depth - H); for logs of crews whose sensors stood at different heights give each its own as LOG=H, again for each (LOG the log as given or its base name), and a bare H for the logs not named; with several sensors at different heights, H is the mean height of all of them; with heights in the log, the ground over each line is taken as the sensors' height where they pass over it minus H, else the ground is taken as level under each traverse")
 	fs.Float64Var(&o.groundSigma, "ground-sigma", 0, "the ground level is known to `S` metres (one sigma) from the depth reference, e.g. how steadily the sensors were held above it; added to the cover sigmas (which otherwise cover the reading noise only); an unsteady height that is not logged also biases the depths and makes their sigmas too small, which S does not mend: log the heights")
 	fs.Float64Var(&o.noise, "noise", 0, "reading noise per axis, `NT` nanotesla, of each reading (for AC, each window's phasor then has NT/sqrt(samples in it)); default, or 0: estimated from the fits")
 	fs.Float64Var(&o.rangeNT, "range-nt", 0, "the magnetometer reads up to ±`NT` nanotesla on each axis: readings within a ten-thousandth of it (or ten times --noise) are taken as clipped and left out of the fits, with a warning, and a reading beyond it is an error; without it, only readings repeating one value exactly at an axis's extreme are")
@@ -195,6 +200,12 @@ func (o *locateOptions) check(fs *pflag.FlagSet) error {
 		// The flag set binds o.calibrations anew for each run.
 		var err error
 		if o.calibration, o.calPerLog, err = splitPerLog("calibration", o.calibrations, calibrationIsBare); err != nil {
+			return err
+		}
+	}
+	if fs != nil && fs.Lookup("sensor-height") != nil {
+		// The flag set binds o.sensorHeights anew for each run.
+		if err := o.splitSensorHeights(); err != nil {
 			return err
 		}
 	}
@@ -267,7 +278,7 @@ func (o *locateOptions) check(fs *pflag.FlagSet) error {
 	if given("window") && o.window == 0 {
 		return usageErrorf("--window 0: want a positive length in seconds (leave it out for the default)")
 	}
-	if given("sensor-height") && o.sensorHeight == 0 {
+	if given("sensor-height") && o.sensorHeight == 0 && len(o.heightPerLog) == 0 {
 		return usageErrorf("--sensor-height 0: for sensors on the ground give --reference-z Z, Z their height (up), and depths are below the ground")
 	}
 	if !(o.minStep >= 0 && o.minStep < 100) {
@@ -297,7 +308,7 @@ func (o *locateOptions) check(fs *pflag.FlagSet) error {
 	if o.hasRefZ && fs.Changed("sensor-height") {
 		return usageErrorf("give --reference-z (depths below the ground at that height) or --sensor-height (depths below the sensors, cover from their height), not both")
 	}
-	hasHeight := o.sensorHeight > 0 || fs != nil && fs.Changed("sensor-height")
+	hasHeight := o.sensorHeight > 0 || len(o.heightPerLog) > 0 || fs != nil && fs.Changed("sensor-height")
 	if o.minCover > 0 && !o.hasRefZ && !hasHeight {
 		return usageErrorf("--min-cover needs to know where the ground is: add --sensor-height H (sensors carried H m above ground) or --reference-z Z (ground at up = Z)")
 	}
@@ -365,7 +376,10 @@ than --min-cover, fits that are poor or ambiguous, and magnetised objects
 groups with a point dipole). Groups with the same value in several logs are
 fitted together. Logs of different sensors each take their own
 calibration (--calibration LOG=CAL.json, again for each log; a bare
-CAL.json for the logs not named); a --base record that overlaps only some
+CAL.json for the logs not named), and logs of crews whose sensors stood at
+different heights their own height (--sensor-height LOG=H, likewise; the
+depths are then referred to one datum, the bare height above the ground,
+and each group's cover is its own); a --base record that overlaps only some
 of the logs corrects those and warns of the others; logs whose columns,
 units or time zones differ are each run through "undercurrent convert"
 with their own input flags first.
@@ -758,6 +772,12 @@ type looseLog struct {
 }
 
 type survey struct {
+	// logHeights is each log's sensor height above the ground, m
+	// (--sensor-height, perlog.go), by its path as given; empty without
+	// the flag. datum is the height the depths are referred to
+	// (report.BuildSettings.SensorHeight).
+	logHeights map[string]float64
+	datum      float64
 	// drifts are the steady drifts of the AC frequency followed in the
 	// groups' fits (followDrift).
 	drifts    []driftLaw
@@ -958,6 +978,11 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 	if err != nil {
 		return nil, err
 	}
+	// Each log's sensor height (perlog.go): its own, or the bare one.
+	logHeights, datum, err := logSensorHeights(o, logs)
+	if err != nil {
+		return nil, err
+	}
 	var cal *calibrate.Calibration
 	var calPath string
 	for k := range logs {
@@ -1022,6 +1047,7 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		sv.baseNoise = newBaseNoise(o.base, base)
 	}
 	sv.logs = logs
+	sv.logHeights, sv.datum = logHeights, datum
 	if sv.geodetic, err = checkOriginFlag(o, logs, opts); err != nil {
 		return nil, err
 	}
@@ -2591,6 +2617,7 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 		fits[i].MeasuredNoise = g.measuredNoise(sv.ac)
 		fits[i].Traverse = traverseOf(g.key, g.from, sv.rewalks, sv.reused)
 		fits[i].Log = g.from
+		fits[i].SensorHeight = sv.logHeights[g.from]
 		if len(sv.logs) > 1 {
 			fits[i].Walk = logLabel(g.from, sv.logs)
 			if n := sv.rewalks[rewalkKey(g.from, g.key)]; n > 1 {
@@ -2620,7 +2647,7 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 	// waiting for it.
 	doc, err := await(ctx, func() (*report.Document, error) {
 		return report.Build(head, fits, &report.BuildSettings{
-			SensorHeight: o.sensorHeight,
+			SensorHeight: sv.datum,
 			MinCover:     o.minCover,
 			CoverCode:    o.coverCode,
 			GroundSigma:  o.groundSigma,
@@ -3074,6 +3101,11 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration, walked 
 	if doc.DepthReference.Kind == report.DepthBelowGround {
 		ref = fmt.Sprintf("below the ground at up = %g m", doc.DepthReference.Z)
 	}
+	if doc.DepthReference.PerLog {
+		// Logs whose sensors stood at different heights: their depths
+		// on one datum (report/logheight.go).
+		ref = fmt.Sprintf("below each group's own sensors, but for the logs whose sensors stood at another height referred to one datum %.2f m above the ground (see the notes),", doc.DepthReference.SensorHeight)
+	}
 	// The cover first where the ground is known, and the depth below the
 	// sensors named so: headed "depth (m)", it read 0.30 m deeper than
 	// the cover (found in review).
@@ -3084,8 +3116,12 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration, walked 
 		fmt.Fprintf(w, "depths are %s; currents %s, one-sigma uncertainties\n", ref, map[bool]string{true: "RMS with phase angle (∠, " + report.PhaseWords(doc.Signal) + ")", false: "DC"}[doc.Signal.Mode == report.SignalAC])
 		fmt.Fprintln(w, report.NoCoverSentence)
 	case depthCol:
-		fmt.Fprintf(w, "cover is the depth below the ground: the depth %s less the sensors' %.2f m height above the ground; currents %s, one-sigma uncertainties\n",
-			ref, doc.DepthReference.SensorHeight, map[bool]string{true: "RMS with phase angle (∠, " + report.PhaseWords(doc.Signal) + ")", false: "DC"}[doc.Signal.Mode == report.SignalAC])
+		height := "the sensors'"
+		if doc.DepthReference.PerLog {
+			height = "the datum's"
+		}
+		fmt.Fprintf(w, "cover is the depth below the ground: the depth %s less %s %.2f m height above the ground; currents %s, one-sigma uncertainties\n",
+			ref, height, doc.DepthReference.SensorHeight, map[bool]string{true: "RMS with phase angle (∠, " + report.PhaseWords(doc.Signal) + ")", false: "DC"}[doc.Signal.Mode == report.SignalAC])
 	default:
 		fmt.Fprintf(w, "cover is the depth %s; currents %s, one-sigma uncertainties\n", ref, map[bool]string{true: "RMS with phase angle (∠, " + report.PhaseWords(doc.Signal) + ")", false: "DC"}[doc.Signal.Mode == report.SignalAC])
 	}
@@ -3102,6 +3138,10 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration, walked 
 	// Values keep every digit their sigmas call for (a milliampere current
 	// to a microampere sigma), so the columns widen to the widest.
 	depthHead, coverHead := "depth below sensors (m)", "cover (m)"
+	if doc.DepthReference.PerLog {
+		// Not below every group's own sensors (report/logheight.go).
+		depthHead = "depth below datum (m)"
+	}
 	dw := 1 + utf8.RuneCountInString(depthHead) // depth column
 	vw := 16                                    // cover column
 	for _, g := range doc.Groups {

@@ -3,8 +3,10 @@ package main
 import (
 	"errors"
 	"fmt"
+	"math"
 	"os"
 	"path/filepath"
+	"strconv"
 	"strings"
 
 	"undercurrent/calibrate"
@@ -209,4 +211,83 @@ func baseUncovered(basePath string, logs, apart []string, errs []error) (string,
 	}
 	return fmt.Sprintf("--base %s: the base record does not overlap %s, which %s left without the base correction (the Earth's daily variation is left in %s readings, as in a run without --base); the other logs were corrected. To correct every log, give a base record for each day (--base may be given more than once); to treat the logs alike, leave --base out, or locate the logs the base covers in a run of their own",
 		basePath, strings.Join(apart, ", "), map[bool]string{true: "is", false: "are"}[len(apart) == 1], map[bool]string{true: "its", false: "their"}[len(apart) == 1]), nil
+}
+
+// splitSensorHeights parts --sensor-height's values (o.sensorHeights) into
+// the bare height (o.sensorHeight) and those given per log
+// (o.heightPerLog), refusing a height that is not a number, or is
+// negative, NaN or infinite; a named log's height of 0 is refused too (for
+// sensors on the ground --reference-z is the flag).
+func (o *locateOptions) splitSensorHeights() error {
+	bare, named, err := splitPerLog("sensor-height", o.sensorHeights, nil)
+	if err != nil {
+		return err
+	}
+	o.sensorHeight, o.heightPerLog = 0, named
+	if bare != "" {
+		if o.sensorHeight, err = parseHeight(bare); err != nil {
+			return usageErrorf("--sensor-height %s: want a height in metres >= 0", bare)
+		}
+	}
+	for _, nv := range named {
+		h, err := parseHeight(nv.value)
+		if err != nil || h == 0 {
+			return usageErrorf("--sensor-height %s=%s: want a height in metres > 0 (for sensors on the ground give --reference-z)", nv.log, nv.value)
+		}
+	}
+	return nil
+}
+
+// parseHeight reads a height in metres, finite and not negative.
+func parseHeight(v string) (float64, error) {
+	h, err := strconv.ParseFloat(strings.TrimSpace(v), 64)
+	if err != nil || h < 0 || math.IsNaN(h) || math.IsInf(h, 0) {
+		return 0, fmt.Errorf("bad height %q", v)
+	}
+	return h, nil
+}
+
+// logSensorHeights returns each log's sensor height above the ground (the
+// one named for it, --sensor-height LOG=H, else the bare one), by its path
+// as given, and the datum the depths are referred to: the bare height, or
+// with every log named, the first log's. Empty (and the bare height, maybe
+// 0) when no log was named. With logs named and no bare height, a log left
+// without a height is refused: its cover would be read from a height that
+// is not its own.
+//
+// The fits' depths are below their own sensors; report.Build refers those
+// of a log whose height h differs from the datum H to the plane H above
+// the ground (depth - (h - H)), so that cover = depth - H holds for every
+// group and the route averages and compares repeats on one footing.
+func logSensorHeights(o *locateOptions, logs []string) (map[string]float64, float64, error) {
+	named, err := resolvePerLog("sensor-height", o.heightPerLog, logs)
+	if err != nil || len(named) == 0 {
+		return nil, o.sensorHeight, err
+	}
+	out := make(map[string]float64, len(logs))
+	var missing []string
+	for k, l := range logs {
+		v, ok := named[k]
+		if !ok {
+			if o.sensorHeight > 0 {
+				out[l] = o.sensorHeight
+			} else {
+				missing = append(missing, l)
+			}
+			continue
+		}
+		h, err := parseHeight(v)
+		if err != nil {
+			return nil, 0, usageErrorf("--sensor-height %s=%s: want a height in metres > 0", l, v)
+		}
+		out[l] = h
+	}
+	if len(missing) > 0 {
+		return nil, 0, usageErrorf("--sensor-height names the sensor height of some logs but not of %s: give each log its own as LOG=H, or a bare --sensor-height H for the logs not named", strings.Join(missing, ", "))
+	}
+	datum := o.sensorHeight
+	if datum == 0 {
+		datum = out[logs[0]]
+	}
+	return out, datum, nil
 }
