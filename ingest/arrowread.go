@@ -40,6 +40,7 @@ type arrowReader struct {
 	lastText, lastAt string
 	lastNaive        bool
 	rb               rawBatch
+	zc               *zoneClock // the times read in a zone (WithTimeZone); nil without one
 	done             bool
 	ended            bool // Next reached the end of the input (see Release)
 	// narrow holds, for each position column stored as floats narrower
@@ -125,11 +126,11 @@ func newArrowReaderFor(name, format string, sc *arrow.Schema, cfg *config) (*arr
 	// Arrow: a timestamp without a time zone is wall-clock time in an
 	// unstated zone. (A log read with WithTimeOptional may have no time.)
 	if pl.src[cTime] >= 0 {
-		if ts, ok := types[pl.src[cTime]].(*arrow.TimestampType); ok && ts.TimeZone == "" {
+		if ts, ok := types[pl.src[cTime]].(*arrow.TimestampType); ok && ts.TimeZone == "" && !cfg.timeText.stated {
 			pl.naiveTime(name, fmt.Sprintf("timestamps of type %s without a time zone", ts), true)
 		}
 	}
-	r := &arrowReader{name: name, pl: pl, cfg: cfg, last: math.NaN()}
+	r := &arrowReader{name: name, pl: pl, cfg: cfg, last: math.NaN(), zc: newZoneClock(cfg.timeText.zone)}
 	if nested {
 		r.flat = sc
 	}
@@ -628,6 +629,9 @@ func (r *arrowReader) convert(rec arrow.RecordBatch) (arrow.RecordBatch, error) 
 
 func (r *arrowReader) fastPath(rec arrow.RecordBatch) bool {
 	pl := r.pl
+	if r.zc != nil {
+		return false // the zone clock sees every time (floats)
+	}
 	if pl.geodetic || pl.inFrame == FrameNED {
 		return false
 	}
@@ -700,7 +704,7 @@ func (r *arrowReader) timeText(raw arrow.Array, i int) (string, bool) {
 		ns := math.Round((v - math.Floor(v)) * 1e9)
 		tm := time.Unix(int64(math.Floor(v)), int64(ns)).UTC()
 		if tt != nil && tt.TimeZone == "" {
-			return tm.Format("2006-01-02T15:04:05.999999999"), !r.pl.timeUTC
+			return tm.Format("2006-01-02T15:04:05.999999999"), !r.pl.timeUTC && !r.cfg.timeText.stated
 		}
 		return tm.Format(time.RFC3339Nano), false
 	}
@@ -837,6 +841,12 @@ func (r *arrowReader) floats(dst []float64, arr arrow.Array, c int) ([]float64, 
 			return nil, rowErr(r.name, r.batch, i, col, "", "type %s cannot be read as %s", arr.DataType(), canonNames[c])
 		case cellTimestamp, cellDuration:
 			s = 1
+			if k == cellTimestamp && c == cTime {
+				var err error
+				if v, err = r.stampIn(v, arr, i); err != nil {
+					return nil, err
+				}
+			}
 		case cellText:
 			var ok bool
 			var badDate string
@@ -844,13 +854,22 @@ func (r *arrowReader) floats(dst []float64, arr arrow.Array, c int) ([]float64, 
 			t := trimField(b)
 			v, ok = parseNumber(t)
 			if !ok && c == cTime {
-				var zoned bool
-				if v, zoned, ok, badDate = r.cfg.timeText.parse(t); ok {
+				rd := r.cfg.timeText.read(t)
+				if rd.gap {
+					return nil, rowErr(r.name, r.batch, i, col, text, "%s %s", quoteText(string(t)), rd.bad)
+				}
+				v, ok, badDate = rd.v, rd.ok, rd.bad
+				if ok {
 					s = 1
-					if !zoned {
+					if !(rd.own || r.cfg.timeText.stated) {
 						pl.naiveTime(r.name+batchRow(r.batch, i, r.start+int64(i)), "times such as "+quoteText(string(t)), false)
 					}
+					if r.zc != nil {
+						v = r.zc.take(v, &rd, false, r.name+batchRow(r.batch, i, r.start+int64(i))+": column "+col, string(t))
+					}
 				}
+			} else if ok && c == cTime && r.zc != nil && s == 1 {
+				v = r.zc.take(v, nil, false, r.name+batchRow(r.batch, i, r.start+int64(i))+": column "+col, string(t))
 			}
 			if !ok && !(isMissingText(t) && r.cfg.allowMissing) {
 				if isMissingText(t) {
@@ -873,10 +892,53 @@ func (r *arrowReader) floats(dst []float64, arr arrow.Array, c int) ([]float64, 
 		}
 		if s != 1 {
 			v = scaled(v, s)
+			if c == cTime && r.zc != nil {
+				v = r.zc.take(v, nil, false, r.name+batchRow(r.batch, i, r.start+int64(i))+": column "+col, strconv.FormatFloat(v, 'f', -1, 64))
+			}
+		} else if c == cTime && r.zc != nil && k == cellNumber {
+			v = r.zc.take(v, nil, false, r.name+batchRow(r.batch, i, r.start+int64(i))+": column "+col, strconv.FormatFloat(v, 'f', -1, 64))
 		}
 		dst = append(dst, v)
 	}
+	if c == cTime {
+		for _, n := range r.zc.flush() {
+			pl.warn("%s", n)
+		}
+	}
 	return dst, nil
+}
+
+// stampIn reads the Arrow timestamp v (Unix seconds of its value, row i
+// of arr) in the zone or at the offset given (WithTimeZone,
+// WithTimeOffset) when its type has no time zone: its value is then a
+// wall-clock reading. One with a time zone keeps it (noted when a zone
+// was given).
+func (r *arrowReader) stampIn(v float64, arr arrow.Array, i int) (float64, error) {
+	if d, ok := arr.(*array.Dictionary); ok {
+		arr = d.Dictionary()
+	}
+	tt, _ := arr.DataType().(*arrow.TimestampType)
+	if tt == nil || v != v {
+		return v, nil
+	}
+	where := r.name + batchRow(r.batch, i, r.start+int64(i)) + ": column " + r.pl.header[r.pl.src[cTime]]
+	wall := time.Unix(int64(math.Floor(v)), 0).UTC().Format("2006-01-02T15:04:05")
+	if tt.TimeZone != "" {
+		return r.zc.take(v, nil, true, where, wall+" ("+tt.String()+")"), nil
+	}
+	tx := r.cfg.timeText
+	switch {
+	case tx.zone != nil:
+		at, n := zoneInstant(v, tx.zone)
+		if n == 0 {
+			return 0, rowErr(r.name, r.batch, i, r.pl.header[r.pl.src[cTime]], wall, "%s %s", quoteText(wall), gapText(v, tx.zone))
+		}
+		rd := timeRead{v: at, inZone: true, ok: true}
+		return r.zc.take(at, &rd, false, where, wall), nil
+	case r.cfg.timeOffsetSet:
+		return v - r.cfg.timeOffset.Seconds(), nil
+	}
+	return v, nil
 }
 
 func appendStrings(dst []string, arr arrow.Array) []string {

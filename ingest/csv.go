@@ -67,7 +67,11 @@ type csvReader struct {
 	cutWarn string
 	cur     arrow.RecordBatch
 	err     error
-	last    float64
+	// zc resolves the times read in a zone (WithTimeZone), in file
+	// order: the one worker's (the config asks for one), nil without a
+	// zone.
+	zc   *zoneClock
+	last float64
 	// lastText is the last time as written, on line lastLine (for the
 	// message of a step back from it).
 	lastText string
@@ -120,6 +124,9 @@ type csvResult struct {
 	noFixAt []string
 	nulLine int // first line of NUL bytes alone, skipped; 0 if none
 	badText int // first line of a text value that is not UTF-8; 0 if none
+	// zoneNotes are the zone clock's warnings (zoneClock) taken while
+	// the chunk was parsed.
+	zoneNotes []string
 }
 
 func (r *csvReader) plan() *plan                    { return r.pl }
@@ -283,7 +290,7 @@ func newCSVReader(name string, rd io.Reader, cfg *config) (*csvReader, error) {
 		pl.meta["decimal_separator"] = ","
 		pl.buildSchema()
 	}
-	r.fast = !r.ws && r.delim != '"' && !cfg.slowOnly && !r.decComma && pl.timeJoin < 0
+	r.fast = !r.ws && r.delim != '"' && !cfg.slowOnly && !r.decComma && pl.timeJoin < 0 && cfg.timeText.zone == nil
 	startLine := lineNo + 1
 	if pl.geodetic && pl.origin == nil {
 		// The origin is the first reading: parse ahead to it. A reading at
@@ -328,6 +335,9 @@ func newCSVReader(name string, rd io.Reader, cfg *config) (*csvReader, error) {
 			pl.setOrigin(Geodetic{})
 		}
 	}
+	// Set after the origin's parse ahead, which parses the same lines
+	// again below.
+	r.zc = newZoneClock(cfg.timeText.zone)
 	r.start(carry, startLine)
 	return r, nil
 }
@@ -911,11 +921,16 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch, plain bool) 
 				v, ok = parseNumber(t)
 			}
 			scale := u.scale
+			var tr *timeRead
 			if !ok && u.c == cTime {
-				var zoned bool
-				if v, zoned, ok, badDate = cfg.timeText.parse(t); ok {
+				rd := cfg.timeText.read(t)
+				if rd.gap {
+					return lineErr(r.name, fieldLine(ln, fields[u.src], line), pl.header[u.src], string(t), "%s %s", quoteText(string(t)), rd.bad)
+				}
+				v, ok, badDate, tr = rd.v, rd.ok, rd.bad, &rd
+				if ok {
 					scale = 1
-					if !zoned && rb.naiveLine == 0 {
+					if !(rd.own || cfg.timeText.stated) && rb.naiveLine == 0 {
 						rb.naiveLine, rb.naiveText = fieldLine(ln, fields[u.src], line), string(t)
 					}
 				}
@@ -970,6 +985,9 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch, plain bool) 
 			}
 			if scale != 1 {
 				v = scaled(v, scale)
+			}
+			if u.c == cTime && r.zc != nil && v == v {
+				v = r.zc.take(v, tr, false, fmt.Sprintf("%s:%d: column %s", r.name, fieldLine(ln, fields[u.src], line), pl.header[u.src]), string(t))
 			}
 			rb.f[u.c][rb.n] = v
 		}
@@ -1218,6 +1236,15 @@ func (r *csvReader) parseJob(j csvJob, rb *rawBatch) csvResult {
 	pl := r.pl
 	rb.reset(pl)
 	err := r.parseChunk(j.data, j.line, rb, j.plain)
+	res := r.parseResult(j, rb, err)
+	res.zoneNotes = r.zc.flush()
+	return res
+}
+
+// parseResult is the result of the chunk j parsed into rb (err: the
+// parse's error).
+func (r *csvReader) parseResult(j csvJob, rb *rawBatch, err error) csvResult {
+	pl := r.pl
 	if err != nil || rb.n == 0 {
 		res := csvResult{err: err, firstTime: math.NaN(), lastTime: math.NaN(), nulLine: rb.nulLine, badText: rb.badText}
 		if err != nil && r.pl.orderAll {
@@ -1411,6 +1438,9 @@ func (r *csvReader) Next() bool {
 		}
 		if res.noFix > 0 {
 			r.pl.noteNoFix(res.noFix, res.noFixAt)
+		}
+		for _, n := range res.zoneNotes {
+			r.pl.warn("%s", n)
 		}
 		if res.err != nil {
 			r.err = res.err

@@ -52,7 +52,11 @@
 // whose unit is UTC (from its name, "Time (UTC)", "time_utc", or given)
 // says they are UTC and is not warned about. WithTimeOffset states the
 // fixed UTC offset of text times written without one: they are read as
-// that offset's local times, without the warning. WithDateOrder reads
+// that offset's local times, without the warning. WithTimeZone names an
+// IANA zone instead (Europe/Berlin, from the zone database built in), so
+// that each time is read at the offset in force then, across the zone's
+// changes of the clocks; both apply to Arrow timestamps without a zone
+// too. WithDateOrder reads
 // dates in a local order, as 21/04/2026 09:40:00.000 (day first) or
 // 4/21/2026 9:40 (month first), which are refused without it.
 //

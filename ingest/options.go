@@ -85,8 +85,9 @@ type config struct {
 	decimalComma      int           // CSV: 0 detect, 1 decimal commas, -1 decimal points (WithDecimalComma)
 	timeOffset        time.Duration // UTC offset of text times written without one (WithTimeOffset)
 	timeOffsetSet     bool
-	dateOrder         DateOrder // order of slash, dot and dash dates (WithDateOrder)
-	timeText          timeText  // how text times are read, from the three above (newConfig)
+	timeZone          *time.Location // IANA zone of times written without an offset (WithTimeZone)
+	dateOrder         DateOrder      // order of slash, dot and dash dates (WithDateOrder)
+	timeText          timeText       // how text times are read, from the three above (newConfig)
 	batchRows         int
 	chunkBytes        int
 	workers           int
@@ -111,7 +112,9 @@ func newConfig(opts []Option) *config {
 			o(c)
 		}
 	}
-	if c.workers < 1 {
+	if c.workers < 1 || c.timeZone != nil {
+		// In a zone, the hour repeated when the clocks go back is
+		// resolved in file order (zoneClock).
 		c.workers = 1
 	}
 	c.timeText = timeTextOf(c)

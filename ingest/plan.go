@@ -222,9 +222,9 @@ func (p *plan) naiveTime(where, what string, typed bool) {
 		return
 	}
 	p.naiveWarned = true
-	fix := "write the offset into the times (2026-04-21T09:40:00+01:00) or give it (WithTimeOffset, on the command line --time-offset +01:00)"
+	fix := "write the offset into the times (2026-04-21T09:40:00+01:00) or give it (WithTimeOffset, on the command line --time-offset +01:00), or their zone, when the log crosses a change of the clocks (WithTimeZone, on the command line --time-zone Europe/Berlin)"
 	if typed {
-		fix = "store them as timestamps with a time zone"
+		fix = "store them as timestamps with a time zone, or give their zone (WithTimeZone, on the command line --time-zone Europe/Berlin) or offset (WithTimeOffset, on the command line --time-offset +01:00)"
 	}
 	p.warn("%s: column %s: %s give no UTC offset and are read as UTC; if they are local times, every time is off by the zone's offset (a base-station correction then pairs the wrong readings): %s, or, if they are UTC, say so with the unit UTC (on the command line --unit time=UTC)",
 		where, p.header[p.src[cTime]], what, fix)
@@ -650,6 +650,10 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 		if p.timeUTC && cfg.timeOffsetSet && cfg.timeOffset != 0 {
 			return nil, &Error{File: file, Batch: -1, Column: header[p.src[cTime]],
 				Msg: fmt.Sprintf("the time column says its times are UTC (its unit or name), and the time offset given (--time-offset %s) says they are local times: give one or the other", offsetText(cfg.timeOffset))}
+		}
+		if z := cfg.timeZone; p.timeUTC && z != nil && z != time.UTC && z.String() != "UTC" {
+			return nil, &Error{File: file, Batch: -1, Column: header[p.src[cTime]],
+				Msg: fmt.Sprintf("the time column says its times are UTC (its unit or name), and the time zone given (--time-zone %s) says they are local times: give one or the other", z)}
 		}
 	}
 	if types != nil {

@@ -127,8 +127,9 @@ func ParseTimeOffset(s string) (time.Duration, error) {
 // time.Hour, -05:30 is -5h30m), instead of as UTC with a warning that
 // they may be local times: the offset is stated, so no such warning is
 // given. Times that carry their own offset (or Z) keep it. Timestamps
-// stored as numbers (seconds since 1970) and Arrow timestamp columns are
-// not changed. A time column that says its times are UTC (its unit or
+// stored as numbers (seconds since 1970) and Arrow timestamp columns
+// with a time zone are not changed; Arrow timestamp columns without one
+// hold wall-clock readings and are read at the offset too. A time column that says its times are UTC (its unit or
 // name) with an offset other than 0 is an error.
 func WithTimeOffset(off time.Duration) Option {
 	return func(c *config) {
@@ -142,11 +143,14 @@ func WithTimeOffset(off time.Duration) Option {
 
 // timeText says how text times are read: loc is the zone of times
 // written without an offset (nil: UTC), stated whether the user gave it,
-// order the date order of slash, dot or dash dates (none: refused).
+// order the date order of slash, dot or dash dates (none: refused). zone
+// is the IANA zone given by WithTimeZone (nil: none), in which such times
+// are read by their wall clock (zoneInstant) rather than through loc.
 type timeText struct {
 	loc    *time.Location
 	stated bool
 	order  DateOrder
+	zone   *time.Location
 }
 
 // timeTextOf is the timeText of the options in c.
@@ -162,6 +166,12 @@ func timeTextOf(c *config) timeText {
 		if c.timeOffset != 0 {
 			tt.loc = time.FixedZone(offsetText(c.timeOffset), int(c.timeOffset/time.Second))
 		}
+	}
+	if c.timeZone != nil {
+		if c.timeOffsetSet {
+			c.fail("time zone %s and time offset %s given together: give one (the zone, when the log crosses a change of the clocks)", c.timeZone, offsetText(c.timeOffset))
+		}
+		tt.stated, tt.loc, tt.zone = true, time.UTC, c.timeZone
 	}
 	return tt
 }
@@ -182,27 +192,62 @@ func offsetText(off time.Duration) string {
 // non-empty when b is a date in the local form that WithDateOrder reads
 // but not a real date or time in the order given: it says why.
 func (tt timeText) parse(b []byte) (v float64, zoned, ok bool, bad string) {
-	if v, zoned, ok = parseTimestampIn(b, tt.loc); ok {
-		return v, zoned || tt.stated, true, ""
+	r := tt.read(b)
+	return r.v, r.own || tt.stated, r.ok, r.bad
+}
+
+// timeRead is a text time as read (timeText.read): v in Unix seconds,
+// own when the text carries its own UTC offset (or Z, or " UTC"), inZone
+// when it was read by its wall clock in the zone of WithTimeZone (v is
+// then the earlier of the two instants an hour repeated when the clocks
+// go back gives: zoneClock.resolve chooses), ok when it is a time; bad
+// says why a text in a local date form, or one the zone skips (gap), is
+// no time.
+type timeRead struct {
+	v               float64
+	own, inZone, ok bool
+	gap             bool
+	bad             string
+}
+
+// read reads a text time (see timeRead).
+func (tt timeText) read(b []byte) timeRead {
+	if tt.zone != nil {
+		r := tt.readIn(b, time.UTC)
+		if r.ok && !r.own {
+			at, n := zoneInstant(r.v, tt.zone)
+			if n == 0 {
+				return timeRead{gap: true, bad: gapText(r.v, tt.zone)}
+			}
+			r.v, r.inZone = at, true
+		}
+		return r
+	}
+	return tt.readIn(b, tt.loc)
+}
+
+// readIn reads a text time, one without its offset at loc (nil: UTC).
+func (tt timeText) readIn(b []byte, loc *time.Location) timeRead {
+	if v, zoned, ok := parseTimestampIn(b, loc); ok {
+		return timeRead{v: v, own: zoned, ok: true}
 	}
 	if tt.order == DateOrderNone {
-		return 0, false, false, ""
+		return timeRead{}
 	}
-	loc := tt.loc
 	if loc == nil {
 		loc = time.UTC
 	}
 	if w, rest := zoneWord(b); w == "UTC" || w == "Z" {
 		// A local date saying it is UTC, as "02.02.2026 15:00:00 UTC".
 		if t, bad, form := parseLocalDate(rest, tt.order, time.UTC); form && bad == "" {
-			return unixSeconds(t), true, true, ""
+			return timeRead{v: unixSeconds(t), own: true, ok: true}
 		}
 	}
 	t, bad, form := parseLocalDate(b, tt.order, loc)
 	if !form || bad != "" {
-		return 0, false, false, bad
+		return timeRead{bad: bad}
 	}
-	return unixSeconds(t), tt.stated, true, ""
+	return timeRead{v: unixSeconds(t), ok: true}
 }
 
 // zoneWord splits a trailing zone word off a time text: " MEZ", " CET",

@@ -49,6 +49,10 @@ type readFlags struct {
 	// (--time-offset); dateOrder the order of day, month and year in
 	// dates such as 21/04/2026 (--date-order).
 	timeOffset, dateOrder string
+	// timeZone is the IANA zone of times written without an offset
+	// (--time-zone), whose offset follows the zone's changes of the
+	// clocks.
+	timeZone string
 	// layout lists the flags given (by options) that describe a CSV
 	// log's layout or a log's columns, units and axes, none of which
 	// applies to an IAGA-2002 file (checkIAGA).
@@ -126,7 +130,8 @@ func (f *readFlags) add(fs *pflag.FlagSet) {
 	fs.BoolVar(&f.decimalComma, "decimal-comma", false, "CSV numbers write decimals with a comma (12,5); default: detected, when the delimiter is not a comma, from the first data row with a number written with a decimal comma or point; --decimal-comma=false refuses them")
 	fs.BoolVar(&f.allowUnterminated, "allow-unterminated", false, "read an Arrow IPC stream file that stops without its end-of-stream marker (a copy cut short or a writer stopped mid-run): the rows before the cut, with a warning (a CSV file's last line that looks cut short is left out with a warning, with this flag or without)")
 	fs.StringVar(&f.timeOrder, "time-order", "ordered", "how time must run through a log: ordered, per-group (within each value of the group column: sensors or traverses logged one after another) or any")
-	fs.StringVar(&f.timeOffset, "time-offset", "", "UTC offset of text times written without one, as +01:00, -05:30, +0100 or Z: they are read as that zone's local times instead of as UTC with a warning; times that carry their own offset keep it")
+	fs.StringVar(&f.timeOffset, "time-offset", "", "UTC offset of text times (and Arrow/Parquet timestamps) written without one, as +01:00, -05:30, +0100 or Z: they are read as that zone's local times instead of as UTC with a warning; times that carry their own offset keep it; one offset for the whole log (across a change of the clocks use --time-zone)")
+	fs.StringVar(&f.timeZone, "time-zone", "", "IANA time zone of times written without a UTC offset, as Europe/Berlin or America/New_York: text times and Arrow/Parquet timestamps without a zone are read as its local times, at the offset in force then, so a log across a change of the clocks reads right; the hour repeated when the clocks go back is read keeping the log's times in order (first at summer time's offset, after the step back at standard time's), with a warning; a time the clocks skipped is refused; times with their own offset keep it, numbers (seconds) are not changed, each with a warning; not with --time-offset")
 	fs.StringVar(&f.dateOrder, "date-order", "", "order of day, month and year in text dates such as 21/04/2026 09:40:00.000, 21.04.2026 09:40 or 4/21/2026 9:40:05: dmy, mdy or ymd (default: such dates are refused)")
 	fs.BoolVar(&f.iagaBaseline, "iaga-baseline-frame", false, "leave IAGA-2002 variation data (H D Z, H E Z; a base-station log too) in the observatory's baseline frame instead of turning them to geographic north by the header's DECBAS; H E Z data of other types (adjusted, definitive), which are never turned, are then read without a warning")
 }
@@ -235,6 +240,16 @@ func (f *readFlags) options(fs *pflag.FlagSet) ([]ingest.Option, error) {
 		}
 		opts = append(opts, ingest.WithTimeOrder(o))
 	}
+	if changed("time-zone") {
+		if changed("time-offset") {
+			return nil, usageErrorf("--time-zone %s and --time-offset %s: give one (the zone, when the log crosses a change of the clocks)", f.timeZone, f.timeOffset)
+		}
+		loc, err := ingest.LoadTimeZone(f.timeZone)
+		if err != nil {
+			return nil, usageErrorf("--time-zone %s", strings.TrimPrefix(err.Error(), "ingest: time zone "))
+		}
+		opts = append(opts, ingest.WithTimeZone(loc))
+	}
 	if changed("time-offset") {
 		off, err := ingest.ParseTimeOffset(f.timeOffset)
 		if err != nil {
@@ -298,7 +313,7 @@ func (f *readFlags) baseOptions(fs *pflag.FlagSet) []ingest.Option {
 	// --date-order applies to the base too (--base-date-order, applied
 	// after it, overrides it): a date in a local order is refused
 	// without one, so no base read before is read otherwise now.
-	// --time-offset does not: a base log is often another instrument's,
+	// --time-offset and --time-zone do not: a base log is often another instrument's,
 	// kept in UTC, and one named "Time (UTC)" would be refused with it.
 	if fs != nil && fs.Changed("date-order") {
 		if o, err := ingest.ParseDateOrder(f.dateOrder); err == nil {
@@ -689,6 +704,8 @@ func inspectCtx(ctx context.Context, path string, opts ...ingest.Option) (*inges
 // with --column, and a count of one takes the singular.
 func cliWording(s string) string {
 	s = strings.ReplaceAll(s, "(try units ", "(try --unit ")
+	s = strings.ReplaceAll(s, "(WithTimeOffset, on the command line --time-offset +01:00)", "with --time-offset +01:00")
+	s = strings.ReplaceAll(s, "(WithTimeZone, on the command line --time-zone Europe/Berlin)", "with --time-zone Europe/Berlin")
 	s = strings.ReplaceAll(s, "(WithTimeOffset, on the command line --time-offset +01:00)", "with --time-offset +01:00")
 	s = strings.ReplaceAll(s, "map time to both, DATE+TIME (on the command line --column time=DATE+TIME)", "--column time=DATE+TIME")
 	s = strings.ReplaceAll(s, "(try columns ", "(try --column ")

@@ -51,6 +51,7 @@ type locateOptions struct {
 	baseFrame   string // --base-frame: enu or ned ("" the file's own)
 	baseDates   string // --base-date-order: the base log's date order
 	baseOffset  string // --base-time-offset: the base log's UTC offset
+	baseZone    string // --base-time-zone: the base log's IANA zone
 	freq        float64
 	window      float64
 	mainsText   string
@@ -143,6 +144,7 @@ func (o *locateOptions) setFlags(fs *pflag.FlagSet) {
 	fs.StringSliceVar(&o.baseUnits, "base-unit", nil, "units of the base log's columns, `CANON=UNIT` as --unit gives them for the survey logs (bx=uT,by=uT,bz=uT); a base log whose field is as steady as the Earth's but whose median lies outside the Earth's field band in nT is refused without it")
 	fs.StringVar(&o.baseFrame, "base-frame", "", "axes of the base log's field columns, `FRAME` enu or ned (default: the file's \"# undercurrent.frame:\" line or metadata, else enu); --frame applies to the survey logs only; not for an IAGA-2002 base, whose elements say")
 	fs.StringVar(&o.baseDates, "base-date-order", "", "order of day, month and year in the base log's text dates (02.02.2026 14:59:00): dmy, mdy or ymd, as --date-order for the survey logs (default: --date-order's, else such dates are refused)")
+	fs.StringVar(&o.baseZone, "base-time-zone", "", "IANA time zone of the base log's times written without a UTC offset, as Europe/Berlin, as --time-zone for the survey logs (which does not apply to the base log); not with --base-time-offset")
 	fs.StringVar(&o.baseOffset, "base-time-offset", "", "UTC offset of the base log's text times written without one, as +01:00, as --time-offset for the survey logs (default: they are read as UTC with a warning; --time-offset applies to the survey logs only, since a base log is often another instrument's, kept in UTC)")
 	fs.Float64Var(&o.freq, "freq", 0, "demodulate the AC field at `HZ` (50, 60, 16.7, 512...) and fit RMS currents with phase; the field's own frequency is then estimated from the log, and if it is off (a grid at 50.1 Hz) the log is demodulated at the estimate, with a warning saying so (too far off, it refuses and names the frequency found); without --freq the DC field is fitted (no frequency is estimated and AC is not looked for)")
 	fs.StringVar(&o.mainsText, "mains", "50,60", "with --freq at another frequency than the mains (an injected tracer, 16.7 Hz), fit the mains `HZ` (50, 60, both as 50,60, or none) and their odd harmonics alongside in every window, so that a strong mains field changing as the sensor walks does not leak into the signal as noise")
@@ -392,13 +394,14 @@ or a slower walk.
 
 The input flags (--column, --unit, --delimiter, --header, --comment,
 --frame, --origin, --decimal-comma, --iaga-baseline-frame, --time-order,
---time-offset, --date-order, --allow-unterminated, --drop-missing), the same for every command that
+--time-offset, --time-zone, --date-order, --allow-unterminated, --drop-missing), the same for every command that
 reads logs, apply to the survey logs. Of them, only --time-order,
 --allow-unterminated and --iaga-baseline-frame apply to the base log
 (--base) too; it comes from another instrument, usually in another format,
 so it is read with its own column names (--base-column), units
 (--base-unit), axes (--base-frame ned, or its own "# undercurrent.frame:
-ned" line; else east, north, up) and layout, and with
+ned" line; else east, north, up), time zone (--base-time-zone
+Europe/Berlin or --base-time-offset +01:00; else UTC) and layout, and with
 missing values allowed. A gap in it that survey readings fall in, shorter
 than the limit (see --base-hold), is bridged by a straight line; one over
 a minute long is reported: its span, the readings and groups in it, and
@@ -967,6 +970,12 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 	if o.baseOffset != "" && o.base == "" {
 		return nil, usageErrorf("--base-time-offset needs --base")
 	}
+	if o.baseZone != "" && o.base == "" {
+		return nil, usageErrorf("--base-time-zone needs --base")
+	}
+	if o.baseZone != "" && o.baseOffset != "" {
+		return nil, usageErrorf("--base-time-zone %s and --base-time-offset %s: give one (the zone, when the base log crosses a change of the clocks)", o.baseZone, o.baseOffset)
+	}
 	if err := checkSurveyCopies(logs); err != nil {
 		return nil, err
 	}
@@ -1106,7 +1115,7 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			}
 			sv.warnings = append(sv.warnings, path+": "+w)
 		}
-		if w := ingest.ClockChangeForward(s.Time, s.X, s.Y, s.Group); w != "" {
+		if w := ingest.ClockChangeForward(s.Time, s.X, s.Y, s.Group); w != "" && o.read.timeZone == "" {
 			sv.warnings = append(sv.warnings, path+": "+w)
 		}
 		if sv.ac {
@@ -1611,6 +1620,13 @@ func baseUnitOptions(o *locateOptions, logs []string, bopts []ingest.Option) ([]
 		}
 		bopts = append(append([]ingest.Option(nil), bopts...), ingest.WithDateOrder(d))
 	}
+	if o.baseZone != "" {
+		loc, err := ingest.LoadTimeZone(o.baseZone)
+		if err != nil {
+			return nil, usageErrorf("--base-time-zone %s", strings.TrimPrefix(err.Error(), "ingest: time zone "))
+		}
+		bopts = append(append([]ingest.Option(nil), bopts...), ingest.WithTimeZone(loc))
+	}
 	if o.baseOffset != "" {
 		off, err := ingest.ParseTimeOffset(o.baseOffset)
 		if err != nil {
@@ -1703,7 +1719,7 @@ func baseReadError(err error) error {
 		return err
 	}
 	msg = baseWording(strings.TrimPrefix(msg, "ingest: "))
-	return fmt.Errorf("%s (this is the base log, --base: --column, --unit and --time-offset apply to the survey logs only, and --date-order applies to the base log only when --base-date-order is not given)", msg)
+	return fmt.Errorf("%s (this is the base log, --base: --column, --unit, --time-offset and --time-zone apply to the survey logs only, and --date-order applies to the base log only when --base-date-order is not given)", msg)
 }
 
 // baseWording words a warning of the base log's reader: the survey logs'
@@ -1716,7 +1732,7 @@ func baseWording(w string) string {
 
 // baseFlagHint matches the survey logs' --column, --unit, --date-order
 // and --time-offset in advice.
-var baseFlagHint = regexp.MustCompile(`(^|[^-a-z])--(column|unit|date-order|time-offset)([ ,;)])`)
+var baseFlagHint = regexp.MustCompile(`(^|[^-a-z])--(column|unit|date-order|time-offset|time-zone)([ ,;)])`)
 
 // zoneShiftHint says when the base record, moved by a whole number of
 // half hours (up to 14 hours either way, the span of the world's time
