@@ -1,5 +1,5 @@
 // Package report turns fit results into what people read: the result
-// document (Document) and its four renderings.
+// document (Document) and its five renderings.
 //
 //   - WriteJSON: the result document, field names fixed by the project
 //     (groups[] with key, points, rms_nt, background_nt and sources[] with
@@ -15,6 +15,8 @@
 //   - WriteHTML: the crew report, one self-contained page with the cautions,
 //     a summary, plots drawn with gonum.org/v1/plot as inline SVG, and the
 //     corrections and settings used.
+//   - WriteFindingsCSV: the findings alone, one row each with the safety
+//     cautions and the run's warnings first, for a spreadsheet.
 //
 // The safety cautions (Cautions) go into every file a crew may be given
 // alone: report.html opens with them, results.json and route.geojson carry
@@ -83,4 +85,16 @@
 // BuildSettings.TrackMinStations groups are numbered 2, 3, ... by
 // decreasing median current, analysed by their own route.Build and kept in
 // Document.Conductors; their findings carry Finding.Conductor.
+//
+// # Magnetised objects
+//
+// A buried steel object beside a conductor (a drum, a valve, a pile) adds a
+// dipole field that a line fit absorbs as a biased current, a spurious weak
+// line or a poor fit. For each group the route reports as a current anomaly,
+// or as a poor fit that stands out, Build searches for one point dipole
+// beside the group's conductors (inverse.StrengthsScan, then a joint fit)
+// and, when the evidence, the agreement with the neighbours and the object's
+// credibility all hold, marks the group as a magnetised object and reports
+// the conductor refitted with it (dipole.go and its neighbours; the criteria
+// are in dipole.go's comments).
 package report

@@ -18,7 +18,7 @@ func init() {
 	register(&command{
 		name:    "convert",
 		usage:   "[flags] IN OUT",
-		summary: "convert a log between CSV, Arrow IPC and Parquet in canonical columns",
+		summary: "convert a log (also IAGA-2002) to CSV, Arrow IPC or Parquet in canonical columns",
 		long: `Convert reads IN (CSV, Arrow IPC file or stream, Parquet or IAGA-2002,
 detected from the content), maps it to the canonical columns (time, x, y,
 z in metres ENU, bx, by, bz in nT, group, ...) and writes OUT in the format

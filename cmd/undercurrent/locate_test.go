@@ -7,7 +7,9 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
+	"syscall"
 	"testing"
+	"time"
 
 	"undercurrent/ingest"
 	"undercurrent/inverse/simulate"
@@ -235,6 +237,7 @@ func TestLocateHelp(t *testing.T) {
 // (the demo's route walked at 1 m/s, one reading per 0.2 m: 1,581
 // readings): reading the CSV log, fitting each traverse with the automatic
 // choice of the number of conductors, the route analysis and the document.
+// Like the locate benchmarks below it reports cpu-ns/op beside ns/op.
 func BenchmarkLocateRoute31(b *testing.B) {
 	log := routeLog(b, 5)
 	o := &locateOptions{count: "auto", groupBy: "group", sensorHeight: 0.3, minCover: 0.6}
@@ -242,11 +245,13 @@ func BenchmarkLocateRoute31(b *testing.B) {
 		b.Fatal(err)
 	}
 	b.ResetTimer()
+	cpu := cpuTime()
 	for b.Loop() {
 		if _, err := runLocate(b.Context(), o, []string{log}, nil); err != nil {
 			b.Fatal(err)
 		}
 	}
+	reportCPU(b, cpu)
 }
 
 // BenchmarkLocateScaling shows how locate's time grows with the readings
@@ -261,17 +266,20 @@ func BenchmarkLocateScaling(b *testing.B) {
 				if err := o.check(nil); err != nil {
 					b.Fatal(err)
 				}
+				cpu := cpuTime()
 				for b.Loop() {
 					if _, err := runLocate(b.Context(), o, []string{log}, nil); err != nil {
 						b.Fatal(err)
 					}
 				}
+				reportCPU(b, cpu)
 			})
 		}
 	}
 }
 
-// BenchmarkLocateRoute31Files adds writing the four result files.
+// BenchmarkLocateRoute31Files adds writing the five result files (results.json,
+// results.csv, findings.csv, route.geojson and report.html).
 func BenchmarkLocateRoute31Files(b *testing.B) {
 	log := routeLog(b, 5)
 	o := &locateOptions{count: "auto", groupBy: "group", sensorHeight: 0.3, minCover: 0.6}
@@ -280,6 +288,7 @@ func BenchmarkLocateRoute31Files(b *testing.B) {
 	}
 	out := filepath.Join(b.TempDir(), "results")
 	b.ResetTimer()
+	cpu := cpuTime()
 	for b.Loop() {
 		doc, err := runLocate(b.Context(), o, []string{log}, nil)
 		if err != nil {
@@ -288,6 +297,25 @@ func BenchmarkLocateRoute31Files(b *testing.B) {
 		if err := writeResults(b.Context(), out, doc, nil, report.CSVOptions{}); err != nil {
 			b.Fatal(err)
 		}
+	}
+	reportCPU(b, cpu)
+}
+
+// cpuTime returns the CPU time (user and system) the process has used.
+func cpuTime() time.Duration {
+	var ru syscall.Rusage
+	if err := syscall.Getrusage(syscall.RUSAGE_SELF, &ru); err != nil {
+		return 0
+	}
+	return time.Duration(ru.Utime.Nano() + ru.Stime.Nano())
+}
+
+// reportCPU adds the process CPU time per operation since start as "cpu-ns/op". On a
+// loaded machine ns/op (wall clock) includes time spent waiting for a core; CPU time is
+// what a locate costs. Run with -cpu 1 so that it is also one core's time.
+func reportCPU(b *testing.B, start time.Duration) {
+	if start > 0 && b.N > 0 {
+		b.ReportMetric(float64(cpuTime()-start)/float64(b.N), "cpu-ns/op")
 	}
 }
 
