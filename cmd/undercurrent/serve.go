@@ -5,6 +5,7 @@ import (
 	"context"
 	"crypto/sha256"
 	"encoding/hex"
+	"errors"
 	"fmt"
 	"io"
 	"log/slog"
@@ -16,6 +17,7 @@ import (
 	"syscall"
 	"time"
 
+	"github.com/nats-io/nats.go"
 	"github.com/spf13/pflag"
 
 	"undercurrent/ingest/broker"
@@ -32,6 +34,9 @@ type serveOptions struct {
 	password string
 	token    string
 	logLevel string
+	// brokerWait bounds the wait at start for a --broker that does not
+	// answer yet.
+	brokerWait time.Duration
 	// TLS and credentials for --broker; the site file's [broker] keys
 	// when empty.
 	tlsCA, tlsCert, tlsKey, creds string
@@ -55,7 +60,8 @@ site file does not list go to uc.dlq.unknown-asset).
 By default serve starts an embedded NATS server with JetStream (file store
 in --data) and its MQTT listener, at the addresses in the site file's
 [broker] table. With --broker it joins an existing NATS server or cluster
-instead. Several serve processes against one broker share the assets: each
+instead, waiting up to --broker-wait (30 s) at start for one that does not
+answer yet. Several serve processes against one broker share the assets: each
 asset is handled by one worker at a time, in order, and another takes over
 within the lease time when a worker dies. SIGTERM or Ctrl-C drains: complete
 windows are published and leases handed back before exit. Serve does not
@@ -68,7 +74,9 @@ digest of it; /metrics has uc_build_info{version,revision}.
 HTTP API (loopback by default): /healthz, /readyz, /metrics,
 /api/v1/assets, /api/v1/assets/ASSET, /api/v1/assets/ASSET/latest,
 /api/v1/assets/ASSET/history?from=&to=&limit=&format=csv&revisions=,
-/api/v1/alarms?asset=&kind=&from=&to=&since=&limit=&revisions=. from and to are window
+/api/v1/alarms?asset=&kind=&from=&to=&since=&limit=&revisions= (503 "broker
+unreachable" at once while the connection to the broker is down, which
+is logged once when lost and once when back). from and to are window
 starts (seconds or RFC 3339; from <= start < to), since is when an alarm was
 stored, and a parameter an endpoint does not take is refused; a listing
 returns the first limit results of its range (default 10000, at most
@@ -92,6 +100,7 @@ Examples:
 		setFlags: func(fs *pflag.FlagSet) {
 			fs.StringVar(&o.config, "config", "", "site file `SITE` (TOML)")
 			fs.StringVar(&o.broker, "broker", "", "join the NATS server or cluster at `URL` (comma-separated) instead of starting one")
+			fs.DurationVar(&o.brokerWait, "broker-wait", 30*time.Second, "with --broker, how long to wait at start for a broker that does not answer yet")
 			fs.StringVar(&o.data, "data", "undercurrent-data", "JetStream store `DIR` of the embedded broker")
 			fs.StringVar(&o.http, "http", "", "HTTP API listen `ADDR` (default from the site file; \"-\" for none)")
 			fs.StringVar(&o.worker, "worker", "", "worker `ID` used in leases and estimates (default host-pid-random)")
@@ -198,8 +207,19 @@ func runServe(ctx context.Context, o *serveOptions, args []string, stderr io.Wri
 		defer gcancel()
 		go growStore(gctx, srv, log)
 	}
-	nc, err := broker.Connect(url, "undercurrent serve", auth)
+	var nc *nats.Conn
+	if o.broker != "" {
+		// A broker started together with serve may not listen yet: wait
+		// for it (up to --broker-wait), saying so once, instead of
+		// exiting at once (rv25 t9).
+		nc, err = broker.ConnectWait(ctx, url, "undercurrent serve", auth, max(o.brokerWait, 0), func(msg string) { log.Info(msg) })
+	} else {
+		nc, err = broker.Connect(url, "undercurrent serve", auth)
+	}
 	if err != nil {
+		if o.broker != "" && errors.Is(err, nats.ErrNoServers) {
+			return fmt.Errorf("%w (--broker; --broker-wait %v)", err, o.brokerWait)
+		}
 		return err
 	}
 	defer nc.Close()

@@ -69,7 +69,8 @@ type StreamSettings struct {
 	// again on a store of another size (see adoptDeadLetterBound).
 	StoreBytes int64
 	// Notify, when set, is given a line for the log when Setup waits for
-	// another process (the dead-letter bound another serve is finding).
+	// another process (the dead-letter bound that the serve which made
+	// the stream is finding).
 	Notify func(msg string)
 }
 
@@ -317,6 +318,24 @@ func defaultDeadLetterBound(ctx context.Context, js jetstream.JetStream, cfg *je
 // ("BOUND WANT FLOOR") is read as found long ago on a store not known.
 const deadLetterBoundKey = "undercurrent.dead_letter_bound"
 
+// deadLetterProbeKey marks a dead-letter stream made by a create-only
+// probe (createDeadLetterBound), whose maker goes on to find its bound
+// and mark it: another Setup waits for that mark only on a stream that
+// carries this one. A stream made unmarked by a serve of an earlier
+// version is probed at once (rv25 t10: a new serve joining an older
+// serve's broker waited the whole deadLetterMarkWait "for the bound
+// another serve is finding" although nothing was finding it).
+const deadLetterProbeKey = "undercurrent.dead_letter_probe"
+
+// withProbeMark returns cfg marked as a create-only probe's.
+func withProbeMark(cfg jetstream.StreamConfig) jetstream.StreamConfig {
+	md := make(map[string]string, len(cfg.Metadata)+1)
+	maps.Copy(md, cfg.Metadata)
+	md[deadLetterProbeKey] = strconv.FormatInt(time.Now().Unix(), 10)
+	cfg.Metadata = md
+	return cfg
+}
+
 // deadLetterAim is what a default dead-letter bound is found for: the aim
 // want, the least bound floor, on a store of store bytes (0: not known).
 type deadLetterAim struct{ want, floor, store int64 }
@@ -398,7 +417,7 @@ func createDeadLetterBound(ctx context.Context, js jetstream.JetStream, cfg *jet
 	want, floor := aim.want, aim.floor
 	for try := 4 * max(want, floor); ; try /= 2 {
 		try = max(try, floor)
-		probe := *cfg
+		probe := withProbeMark(*cfg)
 		probe.MaxBytes = try
 		_, err := createOnly(ctx, js, probe)
 		if noAnswer(err) {
@@ -446,8 +465,9 @@ func createOnly(ctx context.Context, js jetstream.JetStream, cfg jetstream.Strea
 // a size not known is taken by other processes as theirs (they started
 // together with the one that found it) before a start probes the room
 // again (it may have grown); deadLetterNew is how long after its making
-// an unmarked stream is taken for one another process is probing (an
-// older unmarked stream is an earlier version's, probed at once).
+// an unmarked stream that a probe made (deadLetterProbeKey) is taken for
+// one another process is probing (an older one, or one without the probe
+// mark, is an earlier version's, probed at once).
 const (
 	deadLetterMarkWait = 10 * time.Second
 	deadLetterFresh    = 30 * time.Second
@@ -459,7 +479,8 @@ const (
 // found below the aim, on a store of the same size, or, when the store's
 // size is not known, less than deadLetterFresh ago (processes started
 // together); waiting, up to deadLetterMarkWait, for the mark of a stream
-// made less than deadLetterNew ago and not yet marked. Not done, for the
+// that a probe made (deadLetterProbeKey) less than deadLetterNew ago and
+// not yet marked. Not done, for the
 // caller to probe the room by updates: a bound found below its aim on a
 // store of another size (broker.store_max_bytes raised, disk space freed)
 // or longer ago, one found for another aim or given in the settings, a
@@ -487,11 +508,13 @@ func adoptDeadLetterBound(ctx context.Context, js jetstream.JetStream, cfg *jets
 				// does not make a bound found below its aim fresh again.
 				cfg.MaxBytes = m.bound
 				return true, createOrUpdateStream(ctx, js, withDeadLetterMark(*cfg, info.Config.Metadata[deadLetterBoundKey]))
-			case m.ok, time.Since(info.Created) > deadLetterNew:
+			case m.ok, time.Since(info.Created) > deadLetterNew, info.Config.Metadata[deadLetterProbeKey] == "":
+				// Marked otherwise, made long ago, or made unmarked by
+				// a serve of an earlier version, which never marks it.
 				return false, nil
 			}
 			if !told && notify != nil {
-				notify(fmt.Sprintf("waiting up to %v for the dead-letter bound another serve is finding", deadLetterMarkWait))
+				notify(fmt.Sprintf("waiting up to %v for the dead-letter bound that the serve which made the stream moments ago is finding", deadLetterMarkWait))
 				told = true
 			}
 		}

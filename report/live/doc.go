@@ -261,6 +261,8 @@
 // on a cluster, a fetch can reach a node before the new consumer's
 // interest does) is tried again up to four times within about 0.4 s;
 // an API request that still fails answers 502 and is logged at WARN.
+// While the connection to the broker is down, API requests answer 503
+// "broker unreachable" at once instead (brokerlink.go).
 //
 // That search needs the messages in start order. The worker keeps them
 // so: the one alarm dated before the asset's data is known, its silent

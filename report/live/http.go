@@ -34,6 +34,11 @@ import (
 //	POST /api/v1/assets/{asset}/recommission  forget a commissioned geometry (token)
 //	POST /api/v1/assets/{asset}/restart    re-read from ?start= or {"start": ...} (token; 202, see Restarting an asset in the package doc)
 //
+// While the connection to the broker is not up (lost, reconnecting),
+// every /api/v1 request answers 503 {"error": "broker unreachable ..."}
+// at once, with Retry-After: 5; a request the broker fails while
+// connected answers 502.
+//
 // from and to are window starts on the sensor clock (Unix seconds for live
 // data), given as seconds or RFC 3339, the range half-open: from <= start
 // < to (from later than to is refused, and so is a parameter the endpoint
@@ -69,13 +74,13 @@ func (s *Service) Handler() http.Handler {
 	mux.HandleFunc("GET /healthz", func(w http.ResponseWriter, r *http.Request) { fmt.Fprintln(w, "ok") })
 	mux.HandleFunc("GET /readyz", s.readyz)
 	mux.Handle("GET /metrics", s.read(promhttp.HandlerFor(s.met.reg, promhttp.HandlerOpts{Registry: s.met.reg})))
-	mux.Handle("GET /api/v1/assets", s.read(http.HandlerFunc(s.assets)))
-	mux.Handle("GET /api/v1/assets/{asset}", s.read(http.HandlerFunc(s.asset)))
-	mux.Handle("GET /api/v1/assets/{asset}/latest", s.read(http.HandlerFunc(s.latest)))
-	mux.Handle("GET /api/v1/assets/{asset}/history", s.read(http.HandlerFunc(s.history)))
-	mux.Handle("GET /api/v1/alarms", s.read(http.HandlerFunc(s.alarmList)))
-	mux.Handle("POST /api/v1/assets/{asset}/recommission", s.write(http.HandlerFunc(s.recommission)))
-	mux.Handle("POST /api/v1/assets/{asset}/restart", s.write(http.HandlerFunc(s.restart)))
+	mux.Handle("GET /api/v1/assets", s.read(s.needBroker(http.HandlerFunc(s.assets))))
+	mux.Handle("GET /api/v1/assets/{asset}", s.read(s.needBroker(http.HandlerFunc(s.asset))))
+	mux.Handle("GET /api/v1/assets/{asset}/latest", s.read(s.needBroker(http.HandlerFunc(s.latest))))
+	mux.Handle("GET /api/v1/assets/{asset}/history", s.read(s.needBroker(http.HandlerFunc(s.history))))
+	mux.Handle("GET /api/v1/alarms", s.read(s.needBroker(http.HandlerFunc(s.alarmList))))
+	mux.Handle("POST /api/v1/assets/{asset}/recommission", s.write(s.needBroker(http.HandlerFunc(s.recommission))))
+	mux.Handle("POST /api/v1/assets/{asset}/restart", s.write(s.needBroker(http.HandlerFunc(s.restart))))
 	return http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
 		h, pattern := mux.Handler(r)
 		if pattern == "" { // no route: the mux's own 404 or 405 (which sets Allow)

@@ -31,6 +31,10 @@ type metrics struct {
 	takeovers   prometheus.Counter
 	leaseLost   prometheus.Counter
 	discarded   *prometheus.CounterVec // asset
+	// fresh, when set, says whether the per-asset gauges read from the
+	// broker (pending) can be up to date: not while the connection is
+	// down; they are left out of a scrape then.
+	fresh func() bool
 }
 
 func newMetrics() *metrics {
@@ -77,7 +81,7 @@ func newMetrics() *metrics {
 	m.discarded = prometheus.NewCounterVec(prometheus.CounterOpts{Name: "uc_data_discarded_messages_total",
 		Help: "Stream sequences of the data stream that the broker removed (data_retention, data_max_bytes) before this asset's worker read them, by asset: data never processed. Counted as a range of sequences, which may include other assets' messages."}, []string{"asset"})
 	m.reg.MustRegister(m.messages, m.deadLetters, m.samples, m.overlap, m.implausible, m.windows, m.estimates, m.alarms,
-		m.stage, m.latency, m.pending, m.stalls, m.dataLag, m.queryReads, m.leases, m.storeFull, m.storeFailed, m.takeovers, m.leaseLost, m.discarded,
+		m.stage, m.latency, freshCollector{m.pending, m}, m.stalls, m.dataLag, m.queryReads, m.leases, m.storeFull, m.storeFailed, m.takeovers, m.leaseLost, m.discarded,
 		collectors.NewGoCollector(), collectors.NewProcessCollector(collectors.ProcessCollectorOpts{}))
 	return m
 }

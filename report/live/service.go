@@ -122,6 +122,11 @@ type Service struct {
 	// storeFailed holds StoreCheck's error while the broker's store has
 	// a stream that failed a write (see checkStore).
 	storeFailed atomic.Pointer[string]
+	// link follows the connection to the broker (brokerlink.go); beats
+	// and sweeps count runs of failed heartbeats and unknown-asset
+	// sweeps, logged once each.
+	link          brokerLink
+	beats, sweeps failStreak
 
 	// digests holds each asset's settings digest (settingsDigest), taken
 	// at New and carried in the heartbeat.
@@ -183,6 +188,7 @@ func New(cfg Config) (*Service, error) {
 		s.log = slog.New(slog.NewTextHandler(discard{}, nil))
 	}
 	s.log = s.log.With("worker", s.id)
+	s.watchBroker()
 	if s.newEstimator == nil {
 		s.newEstimator = defaultEstimator
 	}
@@ -451,10 +457,19 @@ func (s *Service) leaseRound(ctx context.Context, order []string) {
 	defer cancel()
 	_, err := st.Workers.Put(rctx, s.id, s.heartbeat(time.Now()))
 	if err != nil {
-		s.log.Warn("heartbeat failed", "err", err)
+		// Said once for a run of failures (a broker outage or a full
+		// store fails every beat, four a lease TTL), counted at the end.
+		if s.beats.fail() {
+			s.log.Warn("heartbeat failed; further failures are counted until one succeeds", "err", err)
+		} else {
+			s.log.Debug("heartbeat failed", "err", err)
+		}
 		msg := err.Error()
 		s.beatErr.Store(&msg)
 	} else {
+		if n, d := s.beats.ok(); n > 0 {
+			s.log.Info("heartbeat succeeds again", "failed_beats", n, "failing_for", d)
+		}
 		s.beatErr.Store(nil)
 	}
 	s.noteStore(err)

@@ -46,8 +46,15 @@ func (s *Service) unknownLoop(ctx context.Context, period time.Duration) {
 	tick := time.NewTicker(period)
 	defer tick.Stop()
 	for {
-		if err := s.sweepUnknown(ctx, made); err != nil && ctx.Err() == nil {
-			s.log.Warn("unknown-asset sweep failed; trying again", "err", err)
+		switch err := s.sweepUnknown(ctx, made); {
+		case err != nil && ctx.Err() == nil && s.sweeps.fail():
+			s.log.Warn("unknown-asset sweep failed; trying again each lease TTL, further failures counted until one succeeds", "err", err)
+		case err != nil && ctx.Err() == nil:
+			s.log.Debug("unknown-asset sweep failed", "err", err)
+		case err == nil:
+			if n, d := s.sweeps.ok(); n > 0 {
+				s.log.Info("unknown-asset sweep succeeds again", "failed_sweeps", n, "failing_for", d)
+			}
 		}
 		select {
 		case <-ctx.Done():

@@ -177,6 +177,9 @@ func (s *Service) newAssetAssembler(a *AssetConfig) *assembler {
 // published and the checkpoint is written.
 func (w *assetWorker) run(ctx context.Context) error {
 	defer w.svc.met.dataLag.forget(w.asset.Name)
+	// Not held any more: its consumer lag is no longer this worker's to
+	// report (a gauge left behind read as a fresh value).
+	defer w.svc.met.pending.DeleteLabelValues(w.asset.Name)
 	defer w.svc.waiting.Delete(w.asset.Name)
 	w.ctx = ctx
 	// lctx ends only when the processing must stop at once (see fenced),
