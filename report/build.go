@@ -897,16 +897,23 @@ func circuitOf(f *Fit, ac bool) (p *inverse.PairEstimate, strict, usable bool) {
 	return p, math.Abs(p.NetCurrent) <= 0.5*math.Max(math.Abs(s0.Current), math.Abs(o.Current)), true
 }
 
-// returnShareClause words, for a further AC conductor carrying current
-// back beside conductor 1 (its phase within 90° of anti-phase,
-// trackReturn), the share of conductor 1's current it returns and the net
-// current the two leave to return by other paths; "" otherwise. The
+// returnShareClause words, for conductor 1's return path (trackReturn,
+// chosen by addTrackPhases: near anti-phase, the best such partner, not
+// of a three-phase set), the share of conductor 1's current it returns and
+// the net current the two leave to return by other paths; for the later
+// member of a three-phase set (polyphaseSet), the set's residual, worded
+// as holding only if the three are one circuit; "" otherwise. The
 // go-and-return wording of circuitOf covers only a pair within its depth
 // of each other; a return farther off (a water main 2 m from a service
 // cable carrying a tracer's earth return) was given only its phase from
 // conductor 1 (found in review), while a tracer user needs how much comes
 // back along it and how much goes to remote earth.
 func returnShareClause(t *Track) string {
+	if len(t.PolyphaseSet) == 3 && t.PolyphaseResidualA != nil && t.PolyphaseResidualSigmaA != nil {
+		s := t.PolyphaseSet
+		return fmt.Sprintf("; conductors %d, %d and %d have phases about 120° apart, as the three phases of one three-phase circuit have: if they are one circuit, its residual (the phasor sum of the three currents, what returns by a neutral, earth or conductors outside the survey) is %s A; separate circuits on those phases give the sum no meaning",
+			s[0], s[1], s[2], pm(*t.PolyphaseResidualA, *t.PolyphaseResidualSigmaA))
+	}
 	if t.ReturnShare == nil || t.ReturnShareSigma == nil || t.NetToEarthA == nil || t.NetToEarthSigmaA == nil {
 		return ""
 	}

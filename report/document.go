@@ -682,8 +682,10 @@ type Track struct {
 	// (trackPhase). Nil for DC or when no group has both phases.
 	PhaseFromConductor1      *float64 `json:"phase_from_conductor_1_deg,omitempty"`
 	PhaseFromConductor1Sigma *float64 `json:"phase_from_conductor_1_sigma_deg,omitempty"`
-	// ReturnShare is, for an AC conductor whose phase from conductor 1
-	// lies within 90° of anti-phase (a return path), the share of
+	// ReturnShare is, for the AC conductor read as conductor 1's return
+	// path (its phase within 30° of anti-phase beyond three sigmas, not
+	// one of a three-phase set, and of such the one leaving the least
+	// net current: addTrackPhases), the share of
 	// conductor 1's current it carries back, |I| cos(its angle from
 	// anti-phase) / |I1|, and NetToEarthA the net current the two carry
 	// between them, the magnitude of their phasor sum, A: what returns by
@@ -694,6 +696,17 @@ type Track struct {
 	ReturnShareSigma *float64 `json:"return_share_sigma,omitempty"`
 	NetToEarthA      *float64 `json:"net_to_earth_a,omitempty"`
 	NetToEarthSigmaA *float64 `json:"net_to_earth_sigma_a,omitempty"`
+	// PolyphaseSet is, on the later of two further AC conductors whose
+	// phases from conductor 1 lie near +120° and -120° (polyphaseSet), the
+	// numbers of the three conductors, as the phases of one three-phase
+	// circuit, and PolyphaseResidualA the magnitude of their phasor sum,
+	// A, with its one-sigma: the circuit's residual, what returns by a
+	// neutral, earth or conductors outside the survey, if the three are
+	// one circuit (separate circuits on those phases look the same).
+	// Members of such a set get no ReturnShare. Nil otherwise.
+	PolyphaseSet            []int    `json:"polyphase_set,omitempty"`
+	PolyphaseResidualA      *float64 `json:"polyphase_residual_a,omitempty"`
+	PolyphaseResidualSigmaA *float64 `json:"polyphase_residual_sigma_a,omitempty"`
 }
 
 // Crossing is how a further conductor runs at an angle to conductor 1.

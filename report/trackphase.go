@@ -3,6 +3,7 @@ package report
 import (
 	"fmt"
 	"math"
+	"sort"
 )
 
 // crossPhaseCos is the least |cosine| of the angle in plan between a
@@ -91,28 +92,193 @@ func wrapDeg(a float64) float64 {
 	return a
 }
 
+// returnPhaseTolDeg is how far from anti-phase to conductor 1 a further
+// conductor's phase may lie, beyond three of its sigmas, for it to be read
+// as a return path of conductor 1's current. A return along a pipe, a
+// sheath or a parallel cable is driven by conductor 1's own current: it
+// is anti-phase but for the difference in impedance angle (X/R) between
+// it and the other return paths (remote earth), which for metallic paths
+// a few metres apart at mains and tracer frequencies turns it a few
+// degrees to a few tens (15° in the earth-return scenario the tests use).
+// 30° keeps those and leaves out the phases of a three-phase set, 60°
+// off anti-phase, and other circuits at arbitrary phases (the demo's LV
+// feeder at 135°, 45° off): before, anything within 90° of anti-phase was
+// called a return (found in review).
+const returnPhaseTolDeg = 30
+
+// polyphaseTolDeg is how far from ±120° to conductor 1 two further
+// conductors' phases may lie, beyond three sigmas, for the three to be
+// read as the phases of one three-phase set (polyphaseSet). Unbalanced
+// loads turn the currents' phases from 120° by their power factors' spread
+// (tens of degrees at most); the same 30° as returnPhaseTolDeg keeps a set
+// apart from a return, 60° away.
+const polyphaseTolDeg = 30
+
+// phaseNear is whether phase p (sigma sg), degrees, lies within tol of
+// want beyond three sigmas, with the sigma small enough (3 sigma under
+// tol) that the reading tells a return (180°) from a three-phase partner
+// (±120°), 60° apart.
+func phaseNear(p, sg, want, tol float64) bool {
+	return 3*sg < tol && math.Abs(wrapDeg(p-want)) <= tol+3*sg
+}
+
 // addTrackPhases sets each further conductor's PhaseFromConductor1
-// (trackPhase) and, for a return path, its ReturnShare and NetToEarthA
-// (trackReturn).
+// (trackPhase); for the two further conductors that with conductor 1 make
+// a three-phase set (polyphaseSet), the set's residual on the later of
+// the two; and for conductor 1's return path, its ReturnShare and
+// NetToEarthA (trackReturn). A return path is a conductor outside any such
+// set whose phase is near anti-phase (returnPhaseTolDeg, phaseNear) and,
+// of those, the one that leaves the least net current (the best partner):
+// before, any conductor within 90° of anti-phase was given a share, so a
+// three-phase partner at 120° and a separate LV feeder at 135° were said
+// to leave tens of amperes to remote earth (found in review).
 func (d *Document) addTrackPhases() {
 	for i := range d.Conductors {
 		t := &d.Conductors[i]
 		t.PhaseFromConductor1, t.PhaseFromConductor1Sigma = nil, nil
 		t.ReturnShare, t.ReturnShareSigma, t.NetToEarthA, t.NetToEarthSigmaA = nil, nil, nil, nil
+		t.PolyphaseSet, t.PolyphaseResidualA, t.PolyphaseResidualSigmaA = nil, nil, nil
 		if p, sg, _, ok := trackPhase(d, t); ok {
 			t.PhaseFromConductor1, t.PhaseFromConductor1Sigma = &p, &sg
-			if math.Abs(p) > 90 {
-				if sh, ssh, net, snet, ok := trackReturn(d, t); ok {
-					t.ReturnShare, t.ReturnShareSigma, t.NetToEarthA, t.NetToEarthSigmaA = &sh, &ssh, &net, &snet
-				}
-			}
 		}
+	}
+	inSet := map[int]bool{}
+	if a, b, ok := d.polyphaseSet(); ok {
+		inSet[a], inSet[b] = true, true
+		last := &d.Conductors[a]
+		if d.Conductors[b].Number > last.Number {
+			last = &d.Conductors[b]
+		}
+		if r, sr, ok := polyphaseResidual(d, &d.Conductors[a], &d.Conductors[b]); ok {
+			set := []int{1, d.Conductors[a].Number, d.Conductors[b].Number}
+			sort.Ints(set)
+			last.PolyphaseSet, last.PolyphaseResidualA, last.PolyphaseResidualSigmaA = set, &r, &sr
+		}
+	}
+	best, bestNet := -1, math.Inf(1)
+	var bsh, bssh, bnet, bsnet float64
+	for i := range d.Conductors {
+		t := &d.Conductors[i]
+		if inSet[i] || t.PhaseFromConductor1 == nil || !phaseNear(*t.PhaseFromConductor1, *t.PhaseFromConductor1Sigma, 180, returnPhaseTolDeg) {
+			continue
+		}
+		if sh, ssh, net, snet, ok := trackReturn(d, t); ok && net < bestNet {
+			best, bestNet = i, net
+			bsh, bssh, bnet, bsnet = sh, ssh, net, snet
+		}
+	}
+	if best >= 0 {
+		t := &d.Conductors[best]
+		t.ReturnShare, t.ReturnShareSigma, t.NetToEarthA, t.NetToEarthSigmaA = &bsh, &bssh, &bnet, &bsnet
 	}
 }
 
+// polyphaseSet is the indices in d.Conductors of the two further
+// conductors whose phases from conductor 1 lie near +120° and -120°
+// (polyphaseTolDeg, phaseNear), the lowest-numbered (strongest) of each
+// where more do: with
+// conductor 1 they are read as the phases of one three-phase set (or of
+// separate circuits on those phases, which the phases cannot tell apart).
+// ok is false when there is no such pair.
+func (d *Document) polyphaseSet() (a, b int, ok bool) {
+	a, b = -1, -1
+	for i := range d.Conductors {
+		t := &d.Conductors[i]
+		if t.PhaseFromConductor1 == nil || t.Route.PairNet {
+			continue
+		}
+		p, sg := *t.PhaseFromConductor1, *t.PhaseFromConductor1Sigma
+		switch {
+		case phaseNear(p, sg, 120, polyphaseTolDeg) && (a < 0 || t.Number < d.Conductors[a].Number):
+			a = i
+		case phaseNear(p, sg, -120, polyphaseTolDeg) && (b < 0 || t.Number < d.Conductors[b].Number):
+			b = i
+		}
+	}
+	return a, b, a >= 0 && b >= 0
+}
+
+// polyphaseResidual is the magnitude of the phasor sum of conductor 1's
+// and further conductors ta's and tb's currents, |I1 + Ia + Ib|, A, and its
+// sigma: a three-phase circuit's residual, what returns by a neutral,
+// earth or conductors outside the survey. Each group where all three were
+// used with phases (all read along conductor 1's direction, alongPhases)
+// gives one, with a first-order sigma from the currents' and phases'
+// sigmas (their correlation in the fit left out, as trackReturn does);
+// they are averaged with inverse-variance weights and widened by the
+// Birge ratio (birgeMean). ok is false where no group has all three, or
+// conductor 1 is a pair read as its net.
+func polyphaseResidual(d *Document, ta, tb *Track) (res, sigma float64, ok bool) {
+	if d.Route == nil || d.Route.PairNet {
+		return 0, 0, false
+	}
+	main := map[string]Station{}
+	for _, s := range d.Route.Stations {
+		if s.Used && s.Phase != nil && s.PhaseSigma != nil {
+			main[s.Key] = s
+		}
+	}
+	at := func(t *Track) map[string]Station {
+		m := map[string]Station{}
+		for _, s := range t.Route.Stations {
+			if s.Used && s.Phase != nil && s.PhaseSigma != nil {
+				m[s.Key] = s
+			}
+		}
+		return m
+	}
+	sa, sb := at(ta), at(tb)
+	var rs, ws []float64
+	for _, m := range d.Route.Stations {
+		if _, found := main[m.Key]; !found {
+			continue
+		}
+		x, okx := sa[m.Key]
+		y, oky := sb[m.Key]
+		if !okx || !oky {
+			continue
+		}
+		pa, p1, ok1 := alongPhases(x, m)
+		pb, _, ok2 := alongPhases(y, m)
+		if !ok1 || !ok2 {
+			continue
+		}
+		type ph struct{ i, si, p, sp float64 }
+		ps := []ph{{math.Abs(m.Current), m.CurrentSigma, p1, *m.PhaseSigma}, {math.Abs(x.Current), x.CurrentSigma, pa, *x.PhaseSigma}, {math.Abs(y.Current), y.CurrentSigma, pb, *y.PhaseSigma}}
+		var re, im float64
+		for _, q := range ps {
+			re += q.i * math.Cos(q.p*math.Pi/180)
+			im += q.i * math.Sin(q.p*math.Pi/180)
+		}
+		r := math.Hypot(re, im)
+		var v float64
+		if r > 0 {
+			arg := math.Atan2(im, re)
+			for _, q := range ps {
+				dl := q.p*math.Pi/180 - arg
+				v += sq(math.Cos(dl)*q.si) + sq(q.i*math.Sin(dl)*q.sp*math.Pi/180)
+			}
+		} else {
+			for _, q := range ps {
+				v += sq(q.si)
+			}
+		}
+		sg := math.Sqrt(v)
+		if !(sg > 0) || math.IsInf(sg, 0) {
+			continue
+		}
+		rs, ws = append(rs, r), append(ws, 1/v)
+	}
+	if len(rs) == 0 {
+		return 0, 0, false
+	}
+	res, sigma = birgeMean(rs, ws)
+	return res, sigma, true
+}
+
 // trackReturn is, for further conductor t carrying current back beside
-// conductor 1 (an earth return along a pipe or a sheath, read within 90°
-// of anti-phase), the share of conductor 1's current it carries back,
+// conductor 1 (an earth return along a pipe or a sheath, read near
+// anti-phase: addTrackPhases), the share of conductor 1's current it carries back,
 // -Re(I/I1) = |I| cos(Δ-180°)/|I1| for its phasor I at Δ from conductor
 // 1's I1, and the magnitude of their phasor sum |I1 + I|, the net current
 // that returns by other paths (remote earth), A; each over the groups

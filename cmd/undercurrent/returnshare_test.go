@@ -69,3 +69,88 @@ func TestLocateEarthReturnShare(t *testing.T) {
 		t.Error("report.html does not give the share carried back")
 	}
 }
+
+// returnDoc is results.json's further conductors, with their return
+// shares and three-phase residuals.
+type returnDoc struct {
+	Conductors []struct {
+		Number        int      `json:"number"`
+		PhaseFromC1   *float64 `json:"phase_from_conductor_1_deg"`
+		Share         *float64 `json:"return_share"`
+		Net           *float64 `json:"net_to_earth_a"`
+		Set           []int    `json:"polyphase_set"`
+		Residual      *float64 `json:"polyphase_residual_a"`
+		ResidualSigma *float64 `json:"polyphase_residual_sigma_a"`
+	} `json:"conductors"`
+}
+
+func readReturnDoc(t *testing.T, res string) returnDoc {
+	t.Helper()
+	raw, err := os.ReadFile(filepath.Join(res, "results.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var doc returnDoc
+	if err := json.Unmarshal(raw, &doc); err != nil {
+		t.Fatal(err)
+	}
+	return doc
+}
+
+// TestLocateNoReturnShareForOtherCircuits: a return share and a net
+// current to remote earth are given only for a return path. Before, any
+// further AC conductor within 90° of anti-phase to conductor 1 got one
+// (found in review): a separate 15 A LV feeder 135° from the cable's
+// phase (170° against its 35°, as in the demo) was said to carry back a quarter of its current, and
+// the phases of one three-phase circuit (testdata/scenarios/open/
+// three-core.toml: 60, 45 and 30 A at 0°, -120° and +120°) were each said
+// to leave over 50 A to remote earth. Now the feeder gets no share, nor
+// do the three-phase partners; the set's residual is given instead, within
+// four sigmas of the phasor arithmetic on the scenario's truth,
+// |60 + 45 e^{-i120°} + 30 e^{i120°}| = sqrt(675) = 25.98 A.
+func TestLocateNoReturnShareForOtherCircuits(t *testing.T) {
+	extra := walkLine("LV feeder", -2.0, -0.6, 15, 50, 170)
+	_, log := acWalkAt(t, t.TempDir(), "50.0", extra)
+	res := filepath.Join(t.TempDir(), "res")
+	out := mustCLI(t, "locate", "--freq", "50", "--group-by", "group", "-o", res, log)
+	doc := readReturnDoc(t, res)
+	if len(doc.Conductors) != 1 || doc.Conductors[0].PhaseFromC1 == nil {
+		t.Fatalf("want the LV feeder with its phase from conductor 1: %+v", doc.Conductors)
+	}
+	if c := doc.Conductors[0]; c.Share != nil || c.Net != nil || strings.Contains(out, "carries back") {
+		t.Errorf("the LV feeder at %.1f° from conductor 1 is given a return share:\n%s", *c.PhaseFromC1, out)
+	}
+
+	sc, path := scenario(t, filepath.Join("open", "three-core.toml"))
+	var sum complex128
+	for _, c := range sc.Conductors {
+		sum += cmplx.Rect(c.Current, c.Phase*math.Pi/180)
+	}
+	want := cmplx.Abs(sum)
+	dir := t.TempDir()
+	log = filepath.Join(dir, "log.csv")
+	res = filepath.Join(dir, "res")
+	mustCLI(t, "simulate", path, "-o", log)
+	out = mustCLI(t, "locate", "--group-by", "group", "--reference-z", "0", "--freq", "50", "-o", res, log)
+	doc = readReturnDoc(t, res)
+	if len(doc.Conductors) != 2 {
+		t.Fatalf("%d further conductors, want the two other phases", len(doc.Conductors))
+	}
+	var got int
+	for _, c := range doc.Conductors {
+		if c.Share != nil || c.Net != nil {
+			t.Errorf("conductor %d of the three-phase set is given a return share", c.Number)
+		}
+		if c.Residual == nil {
+			continue
+		}
+		got++
+		t.Logf("set %v residual %.4f ± %.4f A (true %.4f)", c.Set, *c.Residual, *c.ResidualSigma, want)
+		if !(math.Abs(*c.Residual-want) <= 4**c.ResidualSigma) {
+			t.Errorf("residual %.4f ± %.4f A, true %.4f A", *c.Residual, *c.ResidualSigma, want)
+		}
+	}
+	if got != 1 || strings.Contains(out, "carries back") || !strings.Contains(out, "if they are one circuit") {
+		t.Errorf("%d residuals given, want one, worded as one circuit's:\n%s", got, out)
+	}
+}
