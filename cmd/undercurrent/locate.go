@@ -614,9 +614,10 @@ const gridLikeM = 20e3
 // from 166 to 834 km (northings up to 9,300 km), and a national grid's
 // hundreds of km from its false origin. A survey converted from latitude
 // and longitude (convert) always has a reading near its origin, however
-// long its route: the origin is its first reading, its mean position (a
-// reading within the route's half-length), or an --origin LAT,LON that
-// convert refuses over originFarKm from the first reading. Found in
+// long its route: the origin is its first reading, its mean position
+// (which lies within the readings' extent, the box planBox.nearest
+// measures from), or an --origin LAT,LON that convert refuses over
+// originFarKm from the first reading. Found in
 // review: the refusal had judged the readings' centre against 100 km, and
 // so refused a 240 km route that convert itself had written about its
 // first reading (centre 120 km away), and logs whose origin line lay 120
