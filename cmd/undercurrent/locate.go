@@ -1127,7 +1127,7 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			// A time column rounded to one value (an AC log is refused
 			// with the same words by the demodulation).
 			sv.warnings = append(sv.warnings, path+": "+w+"; the readings were fitted, but nothing that takes their times (a base station's correction, the drift, the order of the walks) can be trusted")
-		} else if step, w := ingest.CoarseStamps(s.Time); w != "" && !sv.ac {
+		} else if step, w := ingest.CoarseStamps(s.Time, s.Group); w != "" && !sv.ac {
 			// Times to the whole minute: a base correction pairs the
 			// readings with the base up to a step off.
 			if base != nil {
