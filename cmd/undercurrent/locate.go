@@ -1135,7 +1135,17 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			}
 			sv.warnings = append(sv.warnings, path+": "+w)
 		}
-		if w := ingest.ClockChangeForward(s.Time, s.X, s.Y, s.Group); w != "" {
+		// Only times written as text without an offset can be a clock's
+		// local times misread (found in review: Unix seconds and times
+		// ending in Z were warned of): read as UTC (NaiveTime), or with
+		// the one --time-offset given.
+		zoneless, off := s.NaiveTime, 0.0
+		if v, ok := o.given["time-offset"]; ok {
+			if d, err := ingest.ParseTimeOffset(v); err == nil {
+				zoneless, off = true, d.Seconds()
+			}
+		}
+		if w := ingest.ClockChangeForward(s.Time, s.X, s.Y, s.Group, off); zoneless && w != "" {
 			sv.warnings = append(sv.warnings, path+": "+w)
 		}
 		if sv.ac {
