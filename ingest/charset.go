@@ -118,14 +118,22 @@ func cp1252Warning(file string, line int) string {
 // both are in Unicode normalisation form NFC, so that a name saved
 // decomposed ("Ho\u0308he", as macOS writes names) matches the one typed
 // ("H\u00f6he"); fold compares them ignoring case and surrounding blanks
-// as well.
+// as well, and takes a no-break space (U+00A0, as spreadsheets and word
+// processors put between a word and its unit), a figure space (U+2007)
+// or a narrow no-break space (U+202F) for a space: "Mag\u00a0X" in a
+// header looks the same as "Mag X" typed (found in review: the mapping
+// failed with "no column "Mag X" (columns found: ..., Mag X, ...)").
 func sameName(a, b string, fold bool) bool {
 	if a == b {
 		return true
 	}
 	a, b = norm.NFC.String(a), norm.NFC.String(b)
 	if fold {
+		a, b = plainSpaces.Replace(a), plainSpaces.Replace(b)
 		return strings.EqualFold(strings.TrimSpace(a), strings.TrimSpace(b))
 	}
 	return a == b
 }
+
+// plainSpaces turns the no-break spaces into plain ones (sameName).
+var plainSpaces = strings.NewReplacer("\u00a0", " ", "\u2007", " ", "\u202f", " ")

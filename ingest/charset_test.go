@@ -203,3 +203,24 @@ func TestCSVStrayByteKeepsUTF8(t *testing.T) {
 		t.Errorf("encoding warnings %q, want one at %s:1", enc, p)
 	}
 }
+
+// TestColumnNameNoBreakSpace: a header name holding a no-break space
+// ("Mag\u00a0X", as a spreadsheet or word processor puts between words)
+// is the name typed with a plain space, and the other way round; the
+// mapping failed with "no column "Mag X" (columns found: ..., Mag X,
+// ...)", the two looking the same (found in review). Fails before the
+// change.
+func TestColumnNameNoBreakSpace(t *testing.T) {
+	for _, tc := range []struct{ header, mapping string }{
+		{"Mag\u00a0X", "Mag X"}, {"Mag\u202fX", "mag x"}, {"Mag X", "Mag\u00a0X"},
+	} {
+		p := writeFile(t, "log.csv", "time,x,y,z,"+tc.header+",By,Bz\n0,1,2,3,12.5,17000,-45000\n")
+		s, err := ReadSamples(p, WithColumns("bx="+tc.mapping))
+		if err != nil {
+			t.Fatalf("header %q, mapping %q: %v", tc.header, tc.mapping, err)
+		}
+		if s.Bx[0] != 12.5 {
+			t.Errorf("header %q, mapping %q: bx %v, want 12.5", tc.header, tc.mapping, s.Bx[0])
+		}
+	}
+}
