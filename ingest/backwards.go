@@ -149,10 +149,22 @@ func (p *plan) noteClockChange(t []float64, name string) {
 // step of the group's readings) while the position (x, y) moved by about
 // one sample spacing (at most three times the median), in February to
 // April or September to November (the months of every such change; see
-// ClockChangeBack). Read so, the readings after the change are an hour
-// late, and a base correction pairs them with base readings of an hour
-// later. "" when there is none.
-func ClockChangeForward(t, x, y []float64, g []string) string {
+// ClockChangeBack), that skips a whole hour of the clock's own reading:
+// the reading before lies before a whole hour of the clock, from 22:00
+// to 03:00 (the hours clocks go forward from), the reading after within
+// one interval after the next whole hour. off is the UTC offset, s, the
+// times were read with (0 for times read as UTC), so that t+off is what
+// the clock showed. The caller gives it only times written as text
+// without an offset: times that carry one, and seconds since 1970, cannot
+// be local times misread. Read so, the readings after the change are an
+// hour late, and a base correction pairs them with base readings of an
+// hour later. "" when there is none.
+//
+// Found in review: a stationary sensor (which moves 0 m, one spacing)
+// whose logger stopped for an hour, 00:34:59 to 01:35:00 in UTC seconds,
+// was warned of; a clock's change skips from just before a whole hour to
+// just after the next, which such a pause rarely does.
+func ClockChangeForward(t, x, y []float64, g []string, off float64) string {
 	n := len(t)
 	if n < 3 || len(x) != n || len(y) != n {
 		return ""
@@ -185,6 +197,16 @@ func ClockChangeForward(t, x, y []float64, g []string) string {
 		switch time.Unix(int64(t[i]), 0).UTC().Month() {
 		case time.February, time.March, time.April, time.September, time.October, time.November:
 		default:
+			continue
+		}
+		// The clock's whole hour at or before the reading after the
+		// step: the skipped hour is the one before it.
+		after := t[i] + off
+		hour := 3600 * math.Floor(after/3600)
+		if after-hour > 1.5*iv || t[i-1]+off >= hour-3600 {
+			continue
+		}
+		if h := time.Unix(int64(hour-3600), 0).UTC().Hour(); h < 22 && h > 3 {
 			continue
 		}
 		f := func(v float64) string {

@@ -60,7 +60,7 @@ func TestCSVWindows1252Text(t *testing.T) {
 			enc = append(enc, w)
 		}
 	}
-	if len(enc) != 1 || !strings.HasPrefix(enc[0], p+":1: the file is not UTF-8 text") {
+	if len(enc) != 1 || !strings.HasPrefix(enc[0], p+":1: a byte that is not UTF-8") {
 		t.Errorf("encoding warnings %q, want one at %s:1", enc, p)
 	}
 
@@ -98,7 +98,7 @@ func TestCSVWindows1252Late(t *testing.T) {
 		if g := s.Group[len(s.Group)-1]; g != "Äl" || s.Group[0] != "Öl" {
 			t.Errorf("workers %d: groups %q ... %q, want Öl ... Äl", workers, s.Group[0], g)
 		}
-		want := fmt.Sprintf("%s:%d: the file is not UTF-8 text", p, late)
+		want := fmt.Sprintf("%s:%d: a byte that is not UTF-8", p, late)
 		if w := strings.Join(s.Warnings, "\n"); strings.Count(w, "Windows-1252") != 1 || !strings.Contains(w, want) {
 			t.Errorf("workers %d: warnings %q, want one %q", workers, s.Warnings, want)
 		}
@@ -148,5 +148,79 @@ func TestGammaSymbol(t *testing.T) {
 	}
 	if s.Bx[0] != 12.5 {
 		t.Errorf("--unit bx=γ read %v nT, want 12.5", s.Bx[0])
+	}
+}
+
+// TestCSVStrayByteKeepsUTF8: a UTF-8 file with traverses Südhang-1 to
+// Südhang-3, one row of which (early, in the head the reader had judged
+// the whole file by) holds the name in Latin-1 (0xFC for ü), and a
+// comment line with a stray 0xB5 (µ in Latin-1) beside UTF-8 text. The
+// whole file was read as Windows-1252, so that every valid name became
+// "SÃ¼dhang-1" and the odd row alone read "Südhang-1", a traverse of its
+// own (found in review). Now valid UTF-8 stays as it is and only the
+// bytes that are not UTF-8 are read as Windows-1252: the odd row joins
+// its traverse, and one warning names its line. Fails before the change.
+func TestCSVStrayByteKeepsUTF8(t *testing.T) {
+	var b strings.Builder
+	b.WriteString("# undercurrent.meta.site: Südhang Feld \xb5T\n")
+	b.WriteString("time,x,y,z,bx,by,bz,traverse\n")
+	line := 2
+	odd := 0
+	for g := 1; g <= 3; g++ {
+		for k := 0; k < 5; k++ {
+			line++
+			name := fmt.Sprintf("Südhang-%d", g)
+			if g == 1 && k == 2 {
+				name, odd = "S\xfcdhang-1", line
+			}
+			fmt.Fprintf(&b, "%d,%d.5,0.25,0.3,12.5,17000.25,-45000.5,%s\n", 1_700_000_000+10*g+k, k, name)
+		}
+	}
+	p := writeFile(t, "stray.csv", b.String())
+	s, err := ReadSamples(p, WithColumns("group=traverse"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var got []string
+	for _, g := range s.Group {
+		if len(got) == 0 || got[len(got)-1] != g {
+			got = append(got, g)
+		}
+	}
+	if want := []string{"Südhang-1", "Südhang-2", "Südhang-3"}; !slices.Equal(got, want) {
+		t.Errorf("groups %q, want %q (the Latin-1 row on line %d joined to its traverse)", got, want, odd)
+	}
+	if site := s.Meta["site"]; site != "Südhang Feld µT" {
+		t.Errorf("site %q, want %q", site, "Südhang Feld µT")
+	}
+	var enc []string
+	for _, w := range s.Warnings {
+		if strings.Contains(w, "Windows-1252") {
+			enc = append(enc, w)
+		}
+	}
+	if len(enc) != 1 || !strings.HasPrefix(enc[0], p+":1: a byte that is not UTF-8") {
+		t.Errorf("encoding warnings %q, want one at %s:1", enc, p)
+	}
+}
+
+// TestColumnNameNoBreakSpace: a header name holding a no-break space
+// ("Mag\u00a0X", as a spreadsheet or word processor puts between words)
+// is the name typed with a plain space, and the other way round; the
+// mapping failed with "no column "Mag X" (columns found: ..., Mag X,
+// ...)", the two looking the same (found in review). Fails before the
+// change.
+func TestColumnNameNoBreakSpace(t *testing.T) {
+	for _, tc := range []struct{ header, mapping string }{
+		{"Mag\u00a0X", "Mag X"}, {"Mag\u202fX", "mag x"}, {"Mag X", "Mag\u00a0X"},
+	} {
+		p := writeFile(t, "log.csv", "time,x,y,z,"+tc.header+",By,Bz\n0,1,2,3,12.5,17000,-45000\n")
+		s, err := ReadSamples(p, WithColumns("bx="+tc.mapping))
+		if err != nil {
+			t.Fatalf("header %q, mapping %q: %v", tc.header, tc.mapping, err)
+		}
+		if s.Bx[0] != 12.5 {
+			t.Errorf("header %q, mapping %q: bx %v, want 12.5", tc.header, tc.mapping, s.Bx[0])
+		}
 	}
 }

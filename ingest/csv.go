@@ -76,11 +76,8 @@ type csvReader struct {
 	// message of a step back from it).
 	lastText string
 	lastLine int
-	// cp1252 says the file is read as Windows-1252 (see charset.go):
-	// its head, header or comment lines are not valid UTF-8. cpLine is
-	// the first line found with a byte that is not UTF-8 (0: none yet),
-	// warned of once.
-	cp1252 bool
+	// cpLine is the first line found with a byte that is not UTF-8 (0:
+	// none yet), read as Windows-1252 (see charset.go), warned of once.
 	cpLine int
 }
 
@@ -146,14 +143,6 @@ func newCSVReader(name string, rd io.Reader, cfg *config) (*csvReader, error) {
 		br = bufio.NewReaderSize(crLines{br}, 64<<10)
 	}
 	r := &csvReader{name: name, closer: closer, cfg: cfg, br: br, last: math.NaN()}
-	// The file's encoding is judged once, on its head as far as the
-	// reader has it (at least 4 KiB): a byte that is not UTF-8 there
-	// makes the whole file Windows-1252.
-	_, perr := br.Peek(4096)
-	head, _ := br.Peek(br.Buffered())
-	if i := firstNonUTF8(head, perr != nil); i >= 0 {
-		r.cp1252, r.cpLine = true, lineOf(head, i, 1)
-	}
 	meta := map[string]string{}
 	lineNo := 0
 	var raw []byte   // the physical line that starts the header record
@@ -237,13 +226,13 @@ func newCSVReader(name string, rd io.Reader, cfg *config) (*csvReader, error) {
 	if cfg.header != nil {
 		header = cfg.header
 	} else {
-		if !r.cp1252 {
+		if r.cpLine == 0 {
 			if i := firstNonUTF8(raw, true); i >= 0 {
-				r.cp1252, r.cpLine = true, lineOf(raw, i, headerStart)
+				r.cpLine = lineOf(raw, i, headerStart)
 			}
 		}
 		for _, f := range splitFields(headerLine, r.delim, r.ws, nil) {
-			header = append(header, headerName(f, r.cp1252))
+			header = append(header, headerName(f))
 		}
 	}
 	r.ncols = len(header)
@@ -549,27 +538,24 @@ func (r *csvReader) openQuoteErr(rec []byte, open, line int, atEOF bool) *Error 
 }
 
 // headText returns a comment line of the head (line lineNo) as UTF-8
-// text; a line that is not valid UTF-8 makes the file Windows-1252 (when
-// the head read ahead did not already).
+// text (textValue), noting the line when it is the first not UTF-8.
 func (r *csvReader) headText(ln []byte, lineNo int) string {
-	if !r.cp1252 {
-		if i := firstNonUTF8(ln, true); i >= 0 {
-			r.cp1252, r.cpLine = true, lineNo
-		}
+	s, bad := textValue(ln)
+	if bad && r.cpLine == 0 {
+		r.cpLine = lineNo
 	}
-	s, _ := textValue(ln, r.cp1252)
 	return s
 }
 
 // headerName turns a header field into a column name: blanks trimmed,
 // quotes removed, and a line break inside a quoted name (a spreadsheet's
 // wrapped "Bx\n(nT)") read as one space. A name that is not valid UTF-8
-// of a file read as Windows-1252 (cp, see charset.go) is read so, as
-// older spreadsheets save "Bx (µT)" or "Profil–Name", so that its unit is
-// recognised and a mapping can name it.
-func headerName(f []byte, cp bool) string {
+// has its bytes that are not read as Windows-1252 (textValue, see
+// charset.go), as older spreadsheets save "Bx (µT)" or "Profil–Name", so
+// that its unit is recognised and a mapping can name it.
+func headerName(f []byte) string {
 	f = unquote(f)
-	s, _ := textValue(f, cp)
+	s, _ := textValue(f)
 	s = strings.TrimSpace(s)
 	if strings.ContainsAny(s, "\r\n") {
 		s = strings.Join(strings.Fields(strings.NewReplacer("\r", " ", "\n", " ").Replace(s)), " ")
@@ -894,7 +880,7 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch, plain bool) 
 		for _, u := range r.used {
 			t := trimField(fields[u.src])
 			if u.c == cGroup {
-				s, bad := textValue(t, r.cp1252)
+				s, bad := textValue(t)
 				if bad && rb.badText == 0 {
 					rb.badText = line
 				}
@@ -1061,7 +1047,7 @@ func (r *csvReader) fastLine(ln []byte, rb *rawBatch) bool {
 				if len(f) > 0 && (f[0] == '"' || f[0] == ' ' || f[0] == '\t' || f[len(f)-1] == ' ' || f[len(f)-1] == '\t') {
 					return false
 				}
-				if !r.cp1252 && hasHigh(f) && !utf8.Valid(f) {
+				if hasHigh(f) && !utf8.Valid(f) {
 					return false // the general path notes its line
 				}
 				group, hasGroup = f, true
@@ -1080,7 +1066,7 @@ func (r *csvReader) fastLine(ln []byte, rb *rawBatch) bool {
 		return false // long row, or a trailing delimiter the general path judges
 	}
 	if hasGroup {
-		s, _ := textValue(group, r.cp1252)
+		s, _ := textValue(group)
 		rb.group = append(rb.group, s)
 	}
 	return true

@@ -287,7 +287,7 @@ func Inspect(path string, opts ...Option) (*Inspection, error) {
 					ts.Interval = tq.Interval
 					gap = max(GapFactor*ts.Interval, tq.Steps[1]+0.5*tq.Quantum)
 				}
-			} else if _, w := CoarseStamps(times); w != "" {
+			} else if _, w := CoarseStamps(times, groups); w != "" {
 				// Stamps to the minute: too few steps for RetimeQuantised.
 				in.Warnings = append(in.Warnings, path+": "+w)
 			}

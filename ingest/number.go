@@ -209,7 +209,7 @@ func parseTimestampIn(b []byte, loc *time.Location) (v float64, zoned, ok bool) 
 	}
 	s := string(b)
 	utc := false
-	if bytes.HasSuffix(b, []byte(" UTC")) {
+	if n := len(b); n > 4 && b[n-4] == ' ' && utcWord(string(b[n-3:])) {
 		s, utc = s[:len(s)-4]+"Z", true
 	}
 	for _, l := range timeLayouts {
@@ -229,7 +229,7 @@ func parseTimestampIn(b []byte, loc *time.Location) (v float64, zoned, ok bool) 
 // "" when it looks like neither.
 func timeHint(b []byte, order DateOrder, bad string) string {
 	if w, rest := zoneWord(b); w != "" {
-		if w == "UTC" || w == "Z" {
+		if utcWord(w) {
 			return timeHint(rest, order, bad)
 		}
 		h := " (" + strconv.Quote(w) + " after the time is a time-zone word, which is not read: export the times without it and give the zone's offset from UTC with --time-offset, as --time-offset +01:00 for MEZ or CET, +02:00 for MESZ or CEST; or write times with their offset, as in 2026-04-21T08:40:00+01:00"

@@ -42,29 +42,37 @@ func oneTimeText(n int, first float64) string {
 }
 
 // CoarseStamps describes times written more coarsely than the readings
-// come: most rows share their time with the row before, and every time is
-// a whole minute (a spreadsheet's "dd.mm.yyyy hh:mm"), or a whole second
-// on a log of more than two readings a second. It returns the stamps' step
-// (60 or 1 s) and a warning, or 0 and "" for other times, for fewer than
-// ten rows with a finite time, and for times that are all one (OneTime).
+// come: most rows share their time with the row before of the same group
+// (g, the group of each row; nil for none), and every time is a whole
+// minute (a spreadsheet's "dd.mm.yyyy hh:mm"), or a whole second on a log
+// of more than two readings a second. It returns the stamps' step (60 or
+// 1 s) and a warning, or 0 and "" for other times, for fewer than ten rows
+// with a finite time, and for times that are all one (OneTime).
 // Read as exact, such times put every reading up to the step early: what
 // pairs readings by time (a base station's correction) pairs them up to
-// that far off.
-func CoarseStamps(t []float64) (step float64, msg string) {
+// that far off. Rows of different groups that share a time are not
+// repeats: fixed sensors logged at 1 Hz, interleaved, share each
+// whole-second time exactly (found in review: four sensors at 1 Hz were
+// warned of as "written to the second").
+func CoarseStamps(t []float64, g []string) (step float64, msg string) {
 	n, repeated, distinct := 0, 0, 0
-	prev := math.NaN()
+	last := map[string]float64{}
 	minute, second := true, true
-	for _, v := range t {
+	for i, v := range t {
 		if math.IsNaN(v) || math.IsInf(v, 0) {
 			continue
 		}
 		n++
-		if v == prev {
+		key := ""
+		if i < len(g) {
+			key = g[i]
+		}
+		if prev, ok := last[key]; ok && v == prev {
 			repeated++
 		} else {
 			distinct++
 		}
-		prev = v
+		last[key] = v
 		minute = minute && v == 60*math.Round(v/60)
 		second = second && v == math.Round(v)
 	}

@@ -237,7 +237,7 @@ func (tt timeText) readIn(b []byte, loc *time.Location) timeRead {
 	if loc == nil {
 		loc = time.UTC
 	}
-	if w, rest := zoneWord(b); w == "UTC" || w == "Z" {
+	if w, rest := zoneWord(b); utcWord(w) {
 		// A local date saying it is UTC, as "02.02.2026 15:00:00 UTC".
 		if t, bad, form := parseLocalDate(rest, tt.order, time.UTC); form && bad == "" {
 			return timeRead{v: unixSeconds(t), own: true, ok: true}
@@ -275,6 +275,13 @@ func zoneWord(b []byte) (w string, rest []byte) {
 		return "", b // the 12-hour clock's, which the time's own message refuses
 	}
 	return string(word), bytes.TrimRight(b[:i], " ")
+}
+
+// utcWord says whether a zone word after a time (zoneWord) names UTC:
+// "Z", or "UTC" or "GMT" in any case (found in review: "utc" and "GMT"
+// got the hint to give --time-offset as for MEZ or CET).
+func utcWord(w string) bool {
+	return w == "Z" || strings.EqualFold(w, "UTC") || strings.EqualFold(w, "GMT")
 }
 
 // localDate splits a date written in a local form, with '/', '.' or '-'

@@ -597,32 +597,35 @@ func readTimes(ctx context.Context, path string, opts []ingest.Option) (times []
 
 // inspectGridWarning is what inspect says of positions that look like a
 // projected grid's eastings and northings, as locate does
-// (localGeoJSONWarning, gridUnderOrigin): x, y centred over originGridM
-// from the origin of an origin line (which locate refuses), or over
+// (localGeoJSONWarning, gridUnderOrigin): x, y none of which lies within
+// originGridM of the origin of an origin line (which locate refuses), or
+// within originFarWarnM (which locate warns of), or centred over
 // gridLikeM from a log without one (which locate cannot place on a map).
 // Found in review: inspect said nothing of grid coordinates at all.
 func inspectGridWarning(in *ingest.Inspection) string {
-	var e, n *float64
+	var xs, ys *ingest.ColumnStats
 	geo := false
-	for _, c := range in.Columns {
+	for i, c := range in.Columns {
 		switch c.Column {
 		case ingest.ColX:
-			e = c.Mean
+			xs = &in.Columns[i]
 			geo = strings.HasPrefix(c.Source, "WGS84 ")
 		case ingest.ColY:
-			n = c.Mean
+			ys = &in.Columns[i]
 		}
 	}
-	if e == nil || n == nil || geo {
+	if xs == nil || ys == nil || geo || xs.Mean == nil || ys.Mean == nil || xs.Min == nil || xs.Max == nil || ys.Min == nil || ys.Max == nil {
 		return ""
 	}
-	d := math.Hypot(*e, *n)
+	b := planBox{xmin: *xs.Min, xmax: *xs.Max, ymin: *ys.Min, ymax: *ys.Max, e: *xs.Mean, n: *ys.Mean}
 	switch {
-	case in.Origin != nil && d > originGridM:
-		return gridUnderOriginText(*e, *n) + " (locate refuses it)"
-	case in.Origin == nil && d > gridLikeM:
+	case in.Origin != nil && b.nearest() > originGridM:
+		return gridUnderOriginText(b) + " (locate refuses it)"
+	case in.Origin != nil && b.nearest() > originFarWarnM:
+		return farFromOriginText(b)
+	case in.Origin == nil && math.Hypot(b.e, b.n) > gridLikeM:
 		return fmt.Sprintf("the readings are centred about %.0f m east, %.0f m north: they look like a projected grid's eastings and northings (a national grid or UTM), "+
-			"which locate cannot place on a map; give the log latitude and longitude (lat, lon and height columns) to have it placed (an origin line is for metres from a nearby point, not for grid coordinates)", *e, *n)
+			"which locate cannot place on a map; give the log latitude and longitude (lat, lon and height columns) to have it placed (an origin line is for metres from a nearby point, not for grid coordinates)", b.e, b.n)
 	}
 	return ""
 }

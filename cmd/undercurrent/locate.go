@@ -591,13 +591,18 @@ Examples:
 //
 // With an origin the grid check applies too (found in review: UTM
 // eastings and northings under an origin line were placed 5,800 km away,
-// in the Russian Far East, without a word): readings centred over
-// originGridM from the origin are refused when read (gridUnderOrigin), and
-// a document holding such readings all the same gets that message here.
+// in the Russian Far East, without a word): readings none of which lies
+// within originGridM of the origin are refused when read
+// (gridUnderOrigin), and a document none of whose groups lies within it
+// all the same gets that message here.
 func localGeoJSONWarning(doc *report.Document) string {
 	if doc.Frame.Origin != nil {
-		if e, n, far := gridLike(doc); far && math.Hypot(e, n) > originGridM {
-			return report.FileGeoJSON + ": " + gridUnderOriginText(e, n)
+		var x, y []float64
+		for _, g := range doc.Groups {
+			x, y = append(x, g.Centroid[0]), append(y, g.Centroid[1])
+		}
+		if b, ok := boxPlan(x, y); ok && b.nearest() > originGridM {
+			return report.FileGeoJSON + ": " + gridUnderOriginText(b)
 		}
 		return ""
 	}
@@ -618,57 +623,107 @@ func localGeoJSONWarning(doc *report.Document) string {
 // hundreds of kilometres.
 const gridLikeM = 20e3
 
-// originGridM is how far from the origin its origin line names, m, a
-// log's readings may be centred: an origin line places metres east and
-// north of a nearby point, and a survey converted from latitude and
-// longitude about its first reading (convert) stays within tens of
-// kilometres of it even along a long route, while a projected grid's
-// eastings and northings lie hundreds to thousands of kilometres from any
-// point (UTM eastings 166 to 834 km, northings up to 9,300 km; a national
-// grid's hundreds of km from its false origin).
-const originGridM = 100e3
+// originGridM is how near to the origin its origin line names, m, at
+// least one of a log's readings must lie for its x, y to be taken for
+// metres about that origin: a log none of whose readings comes within
+// originGridM of it is refused (gridUnderOrigin). Projected grids'
+// eastings and northings lie that far from any point: UTM eastings run
+// from 166 to 834 km (northings up to 9,300 km), and a national grid's
+// hundreds of km from its false origin. A survey converted from latitude
+// and longitude (convert) always has a reading near its origin, however
+// long its route: the origin is its first reading, its mean position
+// (which lies within the readings' extent, the box planBox.nearest
+// measures from), or an --origin LAT,LON that convert refuses over
+// originFarKm from the first reading. Found in
+// review: the refusal had judged the readings' centre against 100 km, and
+// so refused a 240 km route that convert itself had written about its
+// first reading (centre 120 km away), and logs whose origin line lay 120
+// or 150 km away, which were fitted before.
+const originGridM = 160e3
 
-// gridUnderOriginText says that positions centred at east e, north n
-// metres from their origin are a projected grid's, not metres from the
-// origin line's point.
-func gridUnderOriginText(e, n float64) string {
-	return fmt.Sprintf("the readings lie about %.0f km from the origin the log's origin line names (centred about %.0f m east, %.0f m north of it): "+
-		"an origin line is for metres east and north from a nearby point, and these x, y look like a projected grid's eastings and northings (a national grid or UTM), "+
+// originFarWarnM is how far from the origin of its origin line a log's
+// nearest reading may lie, m, before locate warns (gridUnderOrigin):
+// between it and originGridM the log is read about its origin, as its
+// origin line asks, but such x, y could also be a small grid's.
+const originFarWarnM = 100e3
+
+// planBox is the extent of a set of x, y: the least and greatest of
+// each, m, and their mean.
+type planBox struct {
+	xmin, xmax, ymin, ymax float64
+	e, n                   float64 // mean
+}
+
+// nearest is how far from the origin (0, 0) the nearest point of the box
+// lies, m: 0 when the box holds the origin; no reading lies nearer.
+func (b planBox) nearest() float64 {
+	dx := max(0, b.xmin, -b.xmax)
+	dy := max(0, b.ymin, -b.ymax)
+	return math.Hypot(dx, dy)
+}
+
+// gridUnderOriginText says that positions within box b, about the
+// origin of an origin line, lie too far from it to be metres from it, and
+// look like a projected grid's.
+func gridUnderOriginText(b planBox) string {
+	return fmt.Sprintf("no reading lies within %.0f km of the origin the log's origin line names (the readings are centred about %.0f m east, %.0f m north of it, about %.0f km away): "+
+		"an origin line is for metres east and north from a nearby point, and x, y this far from any reading's origin look like a projected grid's eastings and northings (a national grid or UTM), "+
 		"which about the origin would place the survey %.0f km away; give the log latitude and longitude (lat, lon and height columns) instead, and leave the origin line out",
-		math.Hypot(e, n)/1e3, e, n, math.Hypot(e, n)/1e3)
+		b.nearest()/1e3, b.e, b.n, math.Hypot(b.e, b.n)/1e3, math.Hypot(b.e, b.n)/1e3)
+}
+
+// farFromOriginText is the warning for readings within box b whose
+// nearest lies over originFarWarnM from the origin of their origin line
+// but not over originGridM.
+func farFromOriginText(b planBox) string {
+	return fmt.Sprintf("no reading lies within %.0f km of the origin the log's origin line names (the readings are centred about %.0f m east, %.0f m north of it): "+
+		"they are read as metres east and north of that origin, as the line says; if these x, y are a projected grid's eastings and northings instead, the survey is placed about %.0f km from where it is: "+
+		"then give the log latitude and longitude (lat, lon and height columns) and leave the origin line out",
+		b.nearest()/1e3, b.e, b.n, math.Hypot(b.e, b.n)/1e3)
 }
 
 // gridUnderOrigin refuses a log whose x, y are about an origin (its origin
-// line) but whose readings are centred over originGridM from it
-// (gridUnderOriginText); nil otherwise, or when x, y came from latitude
-// and longitude.
-func gridUnderOrigin(s *ingest.Samples, geo bool) error {
+// line) but none of whose readings lies within originGridM of it
+// (gridUnderOriginText), and warns of one none of whose readings lies
+// within originFarWarnM (farFromOriginText); nothing otherwise, or when
+// x, y came from latitude and longitude.
+func gridUnderOrigin(s *ingest.Samples, geo bool) (string, error) {
 	if geo || s.Origin == nil {
-		return nil
+		return "", nil
 	}
-	e, n, ok := meanPlan(s.X, s.Y)
-	if !ok || math.Hypot(e, n) <= originGridM {
-		return nil
+	b, ok := boxPlan(s.X, s.Y)
+	switch {
+	case !ok || b.nearest() <= originFarWarnM:
+		return "", nil
+	case b.nearest() <= originGridM:
+		return s.Source + ": " + farFromOriginText(b), nil
 	}
-	return fmt.Errorf("%s: %s", s.Source, gridUnderOriginText(e, n))
+	return "", fmt.Errorf("%s: %s", s.Source, gridUnderOriginText(b))
 }
 
-// meanPlan returns the mean of the finite x, y pairs, and whether there
-// was one.
-func meanPlan(x, y []float64) (e, n float64, ok bool) {
+// boxPlan returns the extent and mean of the finite x, y pairs, and
+// whether there was one.
+func boxPlan(x, y []float64) (b planBox, ok bool) {
 	k := 0
 	for i := range min(len(x), len(y)) {
 		if math.IsNaN(x[i]) || math.IsInf(x[i], 0) || math.IsNaN(y[i]) || math.IsInf(y[i], 0) {
 			continue
 		}
-		e += x[i]
-		n += y[i]
+		if k == 0 {
+			b.xmin, b.xmax, b.ymin, b.ymax = x[i], x[i], y[i], y[i]
+		}
+		b.xmin, b.xmax = min(b.xmin, x[i]), max(b.xmax, x[i])
+		b.ymin, b.ymax = min(b.ymin, y[i]), max(b.ymax, y[i])
+		b.e += x[i]
+		b.n += y[i]
 		k++
 	}
 	if k == 0 {
-		return 0, 0, false
+		return planBox{}, false
 	}
-	return e / float64(k), n / float64(k), true
+	b.e /= float64(k)
+	b.n /= float64(k)
+	return b, true
 }
 
 // gridLike returns the mean of doc's groups' centroids, east and north,
@@ -1107,7 +1162,7 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			// A time column rounded to one value (an AC log is refused
 			// with the same words by the demodulation).
 			sv.warnings = append(sv.warnings, path+": "+w+"; the readings were fitted, but nothing that takes their times (a base station's correction, the drift, the order of the walks) can be trusted")
-		} else if step, w := ingest.CoarseStamps(s.Time); w != "" && !sv.ac {
+		} else if step, w := ingest.CoarseStamps(s.Time, s.Group); w != "" && !sv.ac {
 			// Times to the whole minute: a base correction pairs the
 			// readings with the base up to a step off.
 			if base != nil {
@@ -1115,7 +1170,18 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			}
 			sv.warnings = append(sv.warnings, path+": "+w)
 		}
-		if w := ingest.ClockChangeForward(s.Time, s.X, s.Y, s.Group); w != "" && o.read.timeZone == "" {
+		// Only times written as text without an offset can be a clock's
+		// local times misread (found in review: Unix seconds and times
+		// ending in Z were warned of): read as UTC (NaiveTime), or with
+		// the one --time-offset given; with --time-zone the zone reads
+		// both changes of the clocks right.
+		zoneless, off := s.NaiveTime, 0.0
+		if v, ok := o.given["time-offset"]; ok {
+			if d, err := ingest.ParseTimeOffset(v); err == nil {
+				zoneless, off = true, d.Seconds()
+			}
+		}
+		if w := ingest.ClockChangeForward(s.Time, s.X, s.Y, s.Group, off); zoneless && w != "" && o.read.timeZone == "" {
 			sv.warnings = append(sv.warnings, path+": "+w)
 		}
 		if sv.ac {
@@ -1232,6 +1298,11 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 	// origins lie apart by the origins' distance, and before, a false
 	// "group T10 ... 180 m apart" warning came ahead of the refusal.
 	for _, s := range read {
+		if w, err := gridUnderOrigin(s, sv.geodetic[s.Source]); err != nil {
+			return nil, err
+		} else if w != "" {
+			sv.warnings = append(sv.warnings, w)
+		}
 		if w, err := sv.sameOrigin(o, s); err != nil {
 			return nil, err
 		} else if w != "" {
@@ -2728,9 +2799,6 @@ func (sv *survey) sameOrigin(o *locateOptions, s *ingest.Samples) (string, error
 	flag, given := o.given["origin"]
 	fixed, isFixed := fixedOrigin(flag)
 	geo := sv.geodetic[s.Source]
-	if err := gridUnderOrigin(s, geo); err != nil {
-		return "", err
-	}
 	if !geo && s.Origin == nil && len(sv.geodetic) > 0 {
 		var named []string
 		for _, p := range sv.logs {
