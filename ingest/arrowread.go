@@ -17,6 +17,8 @@ import (
 	"github.com/apache/arrow-go/v18/arrow/ipc"
 	"github.com/apache/arrow-go/v18/parquet/file"
 	"github.com/apache/arrow-go/v18/parquet/pqarrow"
+
+	"undercurrent/ingest/ipcguard"
 )
 
 // arrowReader canonicalises batches from an Arrow IPC file or stream or a
@@ -138,6 +140,9 @@ func newArrowReaderFor(name, format string, sc *arrow.Schema, cfg *config) (*arr
 
 func newArrowFileReader(name string, f *os.File, cfg *config) (_ Reader, err error) {
 	defer recoverCorrupt(name, "Arrow IPC file", &err)
+	if err := checkArrowFooter(f); err != nil {
+		return nil, fileErr(name, plainErr{err}, "not a readable Arrow IPC file (corrupt?)")
+	}
 	fr, err := ipc.NewFileReader(f, ipc.WithAllocator(cfg.mem))
 	if err != nil {
 		if !endsWith(f, "ARROW1") {
@@ -208,7 +213,11 @@ const unterminatedHint = "to read the rows before the cut, allow an unterminated
 func newArrowStreamReader(name string, rd io.Reader, f *os.File, regular bool, cfg *config) (_ Reader, err error) {
 	defer recoverCorrupt(name, "Arrow IPC stream", &err)
 	src := &eofReader{r: rd}
-	sr, err := ipc.NewReader(src, ipc.WithAllocator(cfg.mem))
+	lim := ipcguard.Limits{}
+	if !regular {
+		lim = ipcguard.Limits{Body: MaxPipeMessage, Why: "a stream read from a pipe may hold messages of at most that size: save it to a file and read the file"}
+	}
+	sr, err := ipc.NewReaderFromMessageReader(ipcguard.NewReader(src, cfg.mem, lim), ipc.WithAllocator(cfg.mem))
 	if err != nil {
 		if src.eof && (errors.Is(err, io.ErrUnexpectedEOF) || errors.Is(err, io.EOF)) {
 			return nil, fileErr(name, nil, "not a complete Arrow IPC stream: the file stops at byte %d, before its schema message ends, so it holds no rows", src.n)
@@ -267,6 +276,10 @@ func newParquetReader(name string, f *os.File, cfg *config) (_ Reader, err error
 			return nil, fileErr(name, nil, "not a complete Parquet file: its footer is missing or cut short (the file does not end with the PAR1 magic bytes; an interrupted copy or a writer that stopped?)")
 		}
 		return nil, fileErr(name, plainErr{err}, "not a readable Parquet file (corrupt?)")
+	}
+	if err := checkArrowSchemaKey(pf); err != nil {
+		pf.Close()
+		return nil, fileErr(name, plainErr{err}, "not a readable Parquet file (corrupt?): its %s key, the Arrow schema stored by the writer, cannot be read", arrowSchemaKey)
 	}
 	fr, err := pqarrow.NewFileReader(pf, pqarrow.ArrowReadProperties{BatchSize: int64(cfg.batchRows)}, cfg.mem)
 	if err != nil {
