@@ -381,7 +381,7 @@ func (r *arrowReader) Next() bool {
 			return false
 		}
 		start := r.start
-		out, err := r.convert(rec)
+		out, err := r.convertChecked(rec)
 		r.batch++
 		r.start += rec.NumRows()
 		if err != nil {
@@ -566,6 +566,20 @@ func (r *arrowReader) readSrc() (rec arrow.RecordBatch, err error) {
 }
 
 // convert canonicalises one input batch and checks it.
+// convertChecked is convert with a panic inside arrow-go turned into an
+// error: a corrupt record batch whose buffers are shorter than its
+// lengths (or null counts) say makes arrow-go index past them, and no
+// check of arrow-go's covers primitive columns.
+func (r *arrowReader) convertChecked(rec arrow.RecordBatch) (out arrow.RecordBatch, err error) {
+	defer func() {
+		if p := recover(); p != nil {
+			out = nil
+			err = fileErr(r.name, nil, "corrupt record batch %d (from row %d of the file, counting from 0): its buffers do not match its lengths (%s)", r.batch, r.start, plainText(fmt.Sprint(p)))
+		}
+	}()
+	return r.convert(rec)
+}
+
 func (r *arrowReader) convert(rec arrow.RecordBatch) (arrow.RecordBatch, error) {
 	pl := r.pl
 	n := int(rec.NumRows())
