@@ -82,9 +82,11 @@ func FuzzArrowStream(f *testing.F) {
 func FuzzParquet(f *testing.F) {
 	f.Add(binarySeed(f, FormatParquet, seedCSV, WithAllowMissing(true)), uint8(0))
 	f.Add(binarySeed(f, FormatParquet, seedLatLon), uint8(9))
-	if b, err := os.ReadFile("testdata/lz4-hadoop-arrowrs.parquet"); err == nil {
-		f.Add(b, uint8(1))
+	b, err := os.ReadFile("testdata/lz4-hadoop-arrowrs.parquet")
+	if err != nil {
+		f.Fatal(err)
 	}
+	f.Add(b, uint8(1))
 	f.Fuzz(func(t *testing.T, data []byte, mode uint8) { fuzzOpenFile(t, data, ".parquet", mode) })
 }
 
