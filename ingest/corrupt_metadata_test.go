@@ -3,6 +3,7 @@ package ingest
 import (
 	"bytes"
 	"encoding/binary"
+	"errors"
 	"os"
 	"path/filepath"
 	"runtime"
@@ -10,6 +11,9 @@ import (
 	"syscall"
 	"testing"
 
+	"github.com/apache/arrow-go/v18/arrow"
+	"github.com/apache/arrow-go/v18/arrow/array"
+	"github.com/apache/arrow-go/v18/arrow/ipc"
 	"github.com/apache/arrow-go/v18/arrow/memory"
 )
 
@@ -128,5 +132,73 @@ func TestPipeStreamHugeMessageRefused(t *testing.T) {
 	t.Logf("%d bytes allocated", n)
 	if n > 16<<20 {
 		t.Errorf("reading it allocated %d bytes, want under 16 MiB", n)
+	}
+}
+
+// An LZ4-compressed Arrow IPC stream whose first buffer's uncompressed
+// length (the 8 bytes before the compressed data) is overwritten with
+// 2^40. arrow-go sizes the buffer from it unchecked: the Go runtime was
+// asked for a terabyte and the process died ("fatal error: runtime: out
+// of memory"). The readers' allocator now refuses any one buffer over
+// MaxBuffer, and the stream is refused as corrupt, the same as a file.
+func TestCompressedBufferLengthRefused(t *testing.T) {
+	sc := arrow.NewSchema([]arrow.Field{
+		{Name: "time", Type: arrow.PrimitiveTypes.Float64},
+		{Name: "bx", Type: arrow.PrimitiveTypes.Float64},
+		{Name: "by", Type: arrow.PrimitiveTypes.Float64},
+		{Name: "bz", Type: arrow.PrimitiveTypes.Float64},
+	}, nil)
+	b := array.NewRecordBuilder(memory.DefaultAllocator, sc)
+	defer b.Release()
+	for i := 0; i < 4; i++ {
+		b.Field(i).(*array.Float64Builder).AppendValues([]float64{0, 1, 2}, nil)
+	}
+	rec := b.NewRecordBatch()
+	defer rec.Release()
+	for _, format := range []string{"arrows", "arrow"} {
+		var buf bytes.Buffer
+		var err error
+		if format == "arrows" {
+			w := ipc.NewWriter(&buf, ipc.WithSchema(sc), ipc.WithLZ4())
+			err = errors.Join(w.Write(rec), w.Close())
+		} else {
+			var w *ipc.FileWriter
+			if w, err = ipc.NewFileWriter(&buf, ipc.WithSchema(sc), ipc.WithLZ4()); err == nil {
+				err = errors.Join(w.Write(rec), w.Close())
+			}
+		}
+		if err != nil {
+			t.Fatal(err)
+		}
+		s := buf.Bytes()
+		at := 0
+		if format == "arrow" {
+			at = 8 // "ARROW1" and padding
+		}
+		rb := at + 8 + int(binary.LittleEndian.Uint32(s[at+4:])) // after the schema message
+		body := rb + 8 + int(binary.LittleEndian.Uint32(s[rb+4:]))
+		if n := binary.LittleEndian.Uint64(s[body:]); n != 24 {
+			t.Fatalf("%s: first buffer's uncompressed length %d, want 24 (3 float64)", format, n)
+		}
+		binary.LittleEndian.PutUint64(s[body:], 1<<40)
+		p := writeFile(t, "lz4."+format, string(s))
+		mem := memory.NewCheckedAllocator(memory.NewGoAllocator())
+		n := allocatedBy(func() {
+			var r Reader
+			r, err = Open(p, WithAllocator(mem))
+			if err != nil {
+				return
+			}
+			for r.Next() {
+			}
+			err = r.Err()
+			r.Release()
+		})
+		if err == nil || !strings.Contains(err.Error(), "a buffer of 1099511627776 bytes asked for, over the limit of 1073741824 bytes for one buffer") {
+			t.Errorf("%s: got %v, want the buffer length refused", format, err)
+		}
+		if n > 16<<20 {
+			t.Errorf("%s: reading it allocated %d bytes, want under 16 MiB", format, n)
+		}
 	}
 }

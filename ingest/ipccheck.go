@@ -47,8 +47,34 @@ func checkArrowFooter(f *os.File) error {
 	if _, err := f.ReadAt(footer, size-tail-n); err != nil {
 		return nil
 	}
-	return ipcguard.CheckFooter(footer)
+	blocks, err := ipcguard.FooterBlocks(footer)
+	if err != nil {
+		return err
+	}
+	// Each block's message, as far as the file holds it (arrow-go refuses
+	// a block past the end, or over its metadata limit, by itself).
+	end := size - tail - n
+	var meta []byte
+	for _, b := range blocks {
+		if b.Offset < 0 || b.Meta < 8 || b.Body < 0 || b.Offset > end || int64(b.Meta) > end-b.Offset || int64(b.Meta) > ipcguard.MaxMetadata {
+			continue
+		}
+		meta = append(meta[:0], make([]byte, b.Meta)...)
+		if _, err := f.ReadAt(meta, b.Offset); err != nil {
+			return nil
+		}
+		if err := ipcguard.CheckBlock(b, meta); err != nil {
+			return err
+		}
+	}
+	return nil
 }
+
+// MaxBuffer is the largest one buffer an Arrow or Parquet reader takes
+// (ipcguard.Bounded): 1 GiB, a float64 column of 134 million rows in one
+// record batch or page. A compressed Arrow buffer whose corrupt
+// uncompressed length asks for more is refused as corrupt.
+const MaxBuffer = 1 << 30
 
 // checkArrowSchemaKey checks the serialized Arrow schema a Parquet file
 // may hold under ARROW:schema, which pqarrow decodes with arrow-go's IPC

@@ -291,17 +291,29 @@ func field(f table, depth int) error {
 
 // Message.fbs RecordBatch: length, nodes, buffers, compression,
 // variadicBufferCounts.
-func recordBatch(t table) error {
+// Each buffer (offset, length: two int64) must lie inside the message
+// body of body bytes: arrow-go slices the body by them unchecked (a panic
+// that leaves the body's memory held).
+func recordBatch(t table, body int64) error {
 	if _, _, err := t.vector(1, 16, "a record batch's node list"); err != nil {
 		return err
 	}
-	if _, _, err := t.vector(2, 16, "a record batch's buffer list"); err != nil {
+	first, n, err := t.vector(2, 16, "a record batch's buffer list")
+	if err != nil {
 		return err
+	}
+	for i := 0; i < n; i++ {
+		p := first + 16*i
+		off := int64(binary.LittleEndian.Uint64(t.w.b[p:]))
+		ln := int64(binary.LittleEndian.Uint64(t.w.b[p+8:]))
+		if off < 0 || ln < 0 || off > body || ln > body-off {
+			return t.w.fail(p, "buffer %d at offset %d, %d bytes long, outside the %d-byte message body", i, off, ln, body)
+		}
 	}
 	if _, _, err := t.sub(3); err != nil {
 		return err
 	}
-	_, _, err := t.vector(4, 8, "a record batch's variadic buffer counts")
+	_, _, err = t.vector(4, 8, "a record batch's variadic buffer counts")
 	return err
 }
 
@@ -342,12 +354,12 @@ func CheckMessage(meta []byte) (int64, error) {
 		err = schema(h)
 	case hdrRecordBatch:
 		w.in = "record batch message"
-		err = recordBatch(h)
+		err = recordBatch(h, body)
 	case hdrDictionaryBatch: // id, data, isDelta
 		w.in = "dictionary batch message"
 		var rb table
 		if rb, ok, err = h.sub(1); err == nil && ok {
-			err = recordBatch(rb)
+			err = recordBatch(rb, body)
 		}
 	default:
 		err = w.fail(m.pos, "a message of type %d, which a record batch stream does not hold (a tensor?)", kind)
@@ -355,29 +367,80 @@ func CheckMessage(meta []byte) (int64, error) {
 	return body, err
 }
 
+// Block is a footer's pointer to a message in an Arrow IPC file: the
+// message (length prefix and metadata) at Offset, Meta bytes long, then
+// its body of Body bytes.
+type Block struct {
+	Offset int64
+	Meta   int32
+	Body   int64
+}
+
 // CheckFooter checks an Arrow IPC file's footer flatbuffer (the bytes
 // before its length and the closing ARROW1).
 func CheckFooter(footer []byte) error {
+	_, err := FooterBlocks(footer)
+	return err
+}
+
+// CheckBlock checks the message a footer's block points to: meta is the
+// block's Meta bytes (continuation marker, length, flatbuffer); the
+// message's body must fit in the block's body.
+func CheckBlock(b Block, meta []byte) error {
+	p := 0
+	if len(meta) >= 4 && binary.LittleEndian.Uint32(meta) == 0xFFFFFFFF {
+		p = 4
+	}
+	if len(meta) < p+4 {
+		return &Error{In: "file block", At: int(b.Offset), What: "no message length"}
+	}
+	n := int64(int32(binary.LittleEndian.Uint32(meta[p:])))
+	p += 4
+	if n < 4 || n > int64(len(meta)-p) {
+		return &Error{In: "file block", At: int(b.Offset), What: fmt.Sprintf("a message length of %d in a %d-byte block", n, b.Meta)}
+	}
+	body, err := CheckMessage(meta[p : p+int(n)])
+	if err != nil {
+		return fmt.Errorf("the message at byte %d of the file: %w", b.Offset, err)
+	}
+	if body > b.Body {
+		return &Error{In: "file block", At: int(b.Offset), What: fmt.Sprintf("a message body of %d bytes in a block of %d", body, b.Body)}
+	}
+	return nil
+}
+
+// FooterBlocks checks an Arrow IPC file's footer flatbuffer and returns
+// its dictionary and record batch blocks.
+func FooterBlocks(footer []byte) ([]Block, error) {
 	w := newWalker(footer, "file footer")
 	f, err := w.root()
 	if err != nil {
-		return err
+		return nil, err
 	}
 	// Footer: version, schema, dictionaries, recordBatches, custom_metadata.
 	if s, ok, err := f.sub(1); err != nil {
-		return err
+		return nil, err
 	} else if ok {
 		if err := schema(s); err != nil {
-			return err
+			return nil, err
 		}
 	}
-	if _, _, err := f.vector(2, 24, "the footer's dictionary block list"); err != nil {
-		return err
+	var blocks []Block
+	for slot, what := range map[int]string{2: "the footer's dictionary block list", 3: "the footer's record batch block list"} {
+		first, n, err := f.vector(slot, 24, what)
+		if err != nil {
+			return nil, err
+		}
+		for i := 0; i < n; i++ { // struct Block: offset long, metaDataLength int, (pad), bodyLength long
+			p := first + 24*i
+			blocks = append(blocks, Block{
+				Offset: int64(binary.LittleEndian.Uint64(w.b[p:])),
+				Meta:   int32(binary.LittleEndian.Uint32(w.b[p+8:])),
+				Body:   int64(binary.LittleEndian.Uint64(w.b[p+16:])),
+			})
+		}
 	}
-	if _, _, err := f.vector(3, 24, "the footer's record batch block list"); err != nil {
-		return err
-	}
-	return keyValues(f, 4)
+	return blocks, keyValues(f, 4)
 }
 
 // CheckSchemaStream checks the first message of a serialized IPC stream

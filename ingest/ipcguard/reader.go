@@ -158,3 +158,28 @@ func (r *Reader) Message() (*ipc.Message, error) {
 	r.msg = ipc.NewMessage(meta, body)
 	return r.msg, nil
 }
+
+// Bounded is an allocator that refuses, by a panic that arrow-go's and
+// the ingest readers' recovers turn into an error, any one buffer over
+// Max bytes. arrow-go sizes a compressed IPC buffer's memory from the 8
+// bytes before it (the uncompressed length) unchecked; without a bound a
+// corrupt one asks the Go runtime for terabytes, a fatal error.
+type Bounded struct {
+	memory.Allocator
+	Max int
+}
+
+func (b Bounded) check(n int) {
+	if n > b.Max {
+		panic(fmt.Sprintf("a buffer of %d bytes asked for, over the limit of %d bytes for one buffer (a corrupt length?)", n, b.Max))
+	}
+}
+
+// Allocate allocates n bytes, or panics over Max.
+func (b Bounded) Allocate(n int) []byte { b.check(n); return b.Allocator.Allocate(n) }
+
+// Reallocate resizes buf to n bytes, or panics over Max.
+func (b Bounded) Reallocate(n int, buf []byte) []byte {
+	b.check(n)
+	return b.Allocator.Reallocate(n, buf)
+}
