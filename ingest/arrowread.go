@@ -17,6 +17,8 @@ import (
 	"github.com/apache/arrow-go/v18/arrow/ipc"
 	"github.com/apache/arrow-go/v18/parquet/file"
 	"github.com/apache/arrow-go/v18/parquet/pqarrow"
+
+	"undercurrent/ingest/ipcguard"
 )
 
 // arrowReader canonicalises batches from an Arrow IPC file or stream or a
@@ -139,7 +141,10 @@ func newArrowReaderFor(name, format string, sc *arrow.Schema, cfg *config) (*arr
 
 func newArrowFileReader(name string, f *os.File, cfg *config) (_ Reader, err error) {
 	defer recoverCorrupt(name, "Arrow IPC file", &err)
-	fr, err := ipc.NewFileReader(f, ipc.WithAllocator(cfg.mem))
+	if err := checkArrowFooter(f); err != nil {
+		return nil, fileErr(name, plainErr{err}, "not a readable Arrow IPC file (corrupt?)")
+	}
+	fr, err := ipc.NewFileReader(f, ipc.WithAllocator(ipcguard.Bounded{Allocator: cfg.mem, Max: MaxBuffer}))
 	if err != nil {
 		if !endsWith(f, "ARROW1") {
 			return nil, fileErr(name, nil, "not a complete Arrow IPC file: its footer is missing or cut short (the file does not end with the ARROW1 magic bytes; an interrupted copy or a writer that stopped?)")
@@ -209,7 +214,12 @@ const unterminatedHint = "to read the rows before the cut, allow an unterminated
 func newArrowStreamReader(name string, rd io.Reader, f *os.File, regular bool, cfg *config) (_ Reader, err error) {
 	defer recoverCorrupt(name, "Arrow IPC stream", &err)
 	src := &eofReader{r: rd}
-	sr, err := ipc.NewReader(src, ipc.WithAllocator(cfg.mem))
+	lim := ipcguard.Limits{}
+	if !regular {
+		lim = ipcguard.Limits{Body: MaxPipeMessage, Why: "a stream read from a pipe may hold messages of at most that size: save it to a file and read the file"}
+	}
+	mem := ipcguard.Bounded{Allocator: cfg.mem, Max: MaxBuffer}
+	sr, err := ipc.NewReaderFromMessageReader(ipcguard.NewReader(src, mem, lim), ipc.WithAllocator(mem))
 	if err != nil {
 		if src.eof && (errors.Is(err, io.ErrUnexpectedEOF) || errors.Is(err, io.EOF)) {
 			return nil, fileErr(name, nil, "not a complete Arrow IPC stream: the file stops at byte %d, before its schema message ends, so it holds no rows", src.n)
@@ -269,7 +279,11 @@ func newParquetReader(name string, f *os.File, cfg *config) (_ Reader, err error
 		}
 		return nil, fileErr(name, plainErr{err}, "not a readable Parquet file (corrupt?)")
 	}
-	fr, err := pqarrow.NewFileReader(pf, pqarrow.ArrowReadProperties{BatchSize: int64(cfg.batchRows)}, cfg.mem)
+	if err := checkArrowSchemaKey(pf); err != nil {
+		pf.Close()
+		return nil, fileErr(name, plainErr{err}, "not a readable Parquet file (corrupt?): its %s key, the Arrow schema stored by the writer, cannot be read", arrowSchemaKey)
+	}
+	fr, err := pqarrow.NewFileReader(pf, pqarrow.ArrowReadProperties{BatchSize: int64(cfg.batchRows)}, ipcguard.Bounded{Allocator: cfg.mem, Max: MaxBuffer})
 	if err != nil {
 		pf.Close()
 		return nil, fileErr(name, plainErr{err}, "cannot read the Parquet schema")
@@ -369,7 +383,7 @@ func (r *arrowReader) Next() bool {
 			return false
 		}
 		start := r.start
-		out, err := r.convert(rec)
+		out, err := r.convertChecked(rec)
 		r.batch++
 		r.start += rec.NumRows()
 		if err != nil {
@@ -554,6 +568,20 @@ func (r *arrowReader) readSrc() (rec arrow.RecordBatch, err error) {
 }
 
 // convert canonicalises one input batch and checks it.
+// convertChecked is convert with a panic inside arrow-go turned into an
+// error: a corrupt record batch whose buffers are shorter than its
+// lengths (or null counts) say makes arrow-go index past them, and no
+// check of arrow-go's covers primitive columns.
+func (r *arrowReader) convertChecked(rec arrow.RecordBatch) (out arrow.RecordBatch, err error) {
+	defer func() {
+		if p := recover(); p != nil {
+			out = nil
+			err = fileErr(r.name, nil, "corrupt record batch %d (from row %d of the file, counting from 0): its buffers do not match its lengths (%s)", r.batch, r.start, plainText(fmt.Sprint(p)))
+		}
+	}()
+	return r.convert(rec)
+}
+
 func (r *arrowReader) convert(rec arrow.RecordBatch) (arrow.RecordBatch, error) {
 	pl := r.pl
 	n := int(rec.NumRows())

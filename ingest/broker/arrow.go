@@ -8,6 +8,8 @@ import (
 	"github.com/apache/arrow-go/v18/arrow/array"
 	"github.com/apache/arrow-go/v18/arrow/ipc"
 	"github.com/apache/arrow-go/v18/arrow/memory"
+
+	"undercurrent/ingest/ipcguard"
 )
 
 // Canonical column names of a sensor batch; they are the ingest package's
@@ -125,11 +127,12 @@ func decodeArrow(subject string, data []byte, maxDecoded int64) (b *Batch, err e
 				ErrDecodedTooLarge, subject, maxDecoded, alloc.used, alloc.refused, len(data))
 		}
 	}()
-	// ipc.NewReader does not pass the size limits on to its message reader,
-	// so the message reader is made here.
+	// No message part may be longer than the payload; ipcguard checks
+	// each message's metadata flatbuffer (the schema's field and child
+	// counts, which arrow-go sizes memory from unchecked) before arrow-go
+	// decodes it.
 	lim := int64(len(data))
-	mr := ipc.NewMessageReader(bytes.NewReader(data), ipc.WithAllocator(alloc),
-		ipc.WithMetadataSizeLimit(lim), ipc.WithBodySizeLimit(lim))
+	mr := ipcguard.NewReader(bytes.NewReader(data), alloc, ipcguard.Limits{Metadata: lim, Body: lim})
 	rd, err := ipc.NewReaderFromMessageReader(mr, ipc.WithAllocator(alloc))
 	if err != nil { // the reader has released mr
 		return nil, fmt.Errorf("broker: %s: arrow stream: %v", subject, err)
