@@ -239,7 +239,8 @@ func solve4(a [4][4]float64, b [4]float64) ([4]float64, bool) {
 // that is only part of the step's (a tee, whose branch carries the
 // current on beside the line and leaves the fits before it missing a
 // fortieth of what a loss would) moves the fit by the same part. 1 when
-// the fit's chi-square or signal is not known.
+// the fit's chi-square or signal is not known, or its chi-square is more
+// than 3 of its standard deviations under its degrees of freedom.
 // hiddenChi2 is the misfit, in chi-square, a fit's model leaves it,
 // given the excess x of its chi-square over its degrees of freedom, which
 // the noise scatters by sd: the mean of a misfit of at least 0, equally
@@ -263,6 +264,13 @@ func stepSeen(p *Placed, pred float64) float64 {
 		return 1
 	}
 	dof := float64(p.DOF)
+	if p.Chi2 < dof-3*math.Sqrt(2*dof) {
+		// The noise the chi-square is taken against is well over
+		// what the fit's residuals show (an AC fit's reference
+		// noise, at 0.3 to 0.5 of chi-square per degree of freedom
+		// in the demo): the misfit cannot be told from it.
+		return 1
+	}
 	ex := hiddenChi2(p.Chi2-dof, math.Sqrt(2*dof)) / p.Chi2
 	seen := p.RMS * math.Sqrt(ex) / p.Signal
 	return math.Min(1, seen/pred)
