@@ -413,7 +413,7 @@ func widenForModel(s *Source, p *route.Placed) {
 		s.Notes = append(s.Notes, route.ModelNote(md))
 	}
 	if sn := p.StepNear; sn != nil {
-		s.CurrentSigma, s.DepthSigma = sn.Widen(s.CurrentSigma, s.Current), sn.Widen(s.DepthSigma, s.Depth)
+		s.CurrentSigma, s.DepthSigma = sn.Widen(s.CurrentSigma, s.Current), sn.WidenDepth(s.DepthSigma, s.Depth)
 		s.Notes = append(s.Notes, route.StepNote(sn))
 	}
 }

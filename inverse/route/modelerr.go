@@ -101,10 +101,10 @@ func ModelNote(md *ModelDoubt) string {
 }
 
 // StepReachDepths is how many of a station's depths from a current step
-// its sigmas are widened for the step's half-line term whenever that term
-// is over 0.3 of the fit's own current sigma; farther, only a term of at
-// least the sigma widens them. At 10 depths the term, read at the line's
-// depth, is 0.5% of half the step.
+// its sigmas are widened for the step's field whenever the error that
+// field gives its current is over 0.3 of the fit's own current sigma;
+// farther, only an error of at least the sigma widens them. At 10 depths
+// a step's error is under 1% of half the step.
 const StepReachDepths = 10.0
 
 // StepNear records the widening of a station's current and depth sigmas
@@ -113,31 +113,183 @@ type StepNear struct {
 	// Step is the size of the step, A, and Distance the station's
 	// distance from it along the route, m.
 	Step, Distance float64
-	// Share is the share of the station's current that the step's
-	// half-line field can move it by; the sigmas are widened by it.
-	Share float64
+	// Share is the share of the station's current, and DepthShare of its
+	// depth, that the step's field moves the fit by (stepBias, scaled
+	// by Seen); the sigmas are widened by them.
+	Share, DepthShare float64
+	// Seen is the share of the step's field that the fit's misfit leaves
+	// room for (1 when the fit's chi-square is not known): the root of
+	// the misfit over the noise against the misfit the step's field
+	// would leave, at most 1.
+	Seen float64
 	// FitCurrentSigma and FitDepthSigma are the sigmas before,
 	// CurrentSigma and DepthSigma after (A, m).
 	FitCurrentSigma, FitDepthSigma float64
 	CurrentSigma, DepthSigma       float64
 }
 
+// stepBias is what the field of a current step dI at distance d along
+// the line moves a straight infinite line's fit of current I by, at a
+// station whose readings lie at the distances reach from the line
+// (Station.Reach): the change of current dCur (A) and of depth dDepth (m),
+// and the share of the line's field the fit is left missing, resid.
+//
+// A step of dI at distance d is the field of a half-line of dI ending
+// there: read at a distance r from the line it differs from an infinite
+// line's of the same current by that of a line of dI/2 (1 - d/sqrt(d² +
+// r²)) (Biot-Savart, the field of a finite straight segment). The
+// readings are taken on a level traverse across the line, the nearest
+// straight above it at r = reach[0], the others either side, each
+// distance standing for an equal share of the readings' weight 1/r² (so
+// for readings in number as r²); the fit of current, depth and a uniform
+// background is linearised about the line, and the error field split by
+// least squares into the part the fit takes up, which moves its current
+// and depth, and the part it leaves. The near readings set the fit: the
+// error field, growing as r there, is mostly taken up (at 10 depths from
+// a 15 A step on 40 A, 1.2 m under the sensors, 0.43 A of current and
+// 1 cm of depth).
+func stepBias(reach []float64, d, dI, I float64) (dCur, dDepth, resid float64) {
+	if len(reach) == 0 || !(reach[0] > 0) || !(I > 0) {
+		return 0, 0, 0
+	}
+	h := reach[0]
+	var a [4][4]float64
+	var b [4]float64
+	var ee, sig float64
+	for _, r := range reach {
+		if !(r >= h) {
+			r = h
+		}
+		r2 := r * r
+		x := math.Sqrt(math.Max(0, r2-h*h))
+		g := 1 - d/math.Hypot(d, r)
+		for _, sx := range [2]float64{x, -x} {
+			w := r2 / 2
+			// The line's horizontal and vertical field across the
+			// traverse, per unit of mu0/2pi: I h/r², -I x/r².
+			e := [2]float64{-dI / 2 * g * h / r2, dI / 2 * g * sx / r2}
+			cols := [4][2]float64{
+				{h / r2, -sx / r2}, // d/dI
+				{I * (r2 - 2*h*h) / (r2 * r2), 2 * I * h * sx / (r2 * r2)}, // d/dh
+				{1, 0}, {0, 1}, // background
+			}
+			for m := range 4 {
+				for n := range 4 {
+					a[m][n] += w * (cols[m][0]*cols[n][0] + cols[m][1]*cols[n][1])
+				}
+				b[m] += w * (cols[m][0]*e[0] + cols[m][1]*e[1])
+			}
+			ee += w * (e[0]*e[0] + e[1]*e[1])
+			sig += w * I * I / r2
+		}
+	}
+	sol, ok := solve4(a, b)
+	if !ok {
+		return 0, 0, 0
+	}
+	left := ee
+	for m := range 4 {
+		left -= sol[m] * b[m]
+	}
+	return sol[0], sol[1], math.Sqrt(math.Max(0, left) / sig)
+}
+
+// solve4 solves a x = b by Gaussian elimination with partial pivoting;
+// false when a is singular.
+func solve4(a [4][4]float64, b [4]float64) ([4]float64, bool) {
+	var x [4]float64
+	for c := range 4 {
+		p := c
+		for r := c + 1; r < 4; r++ {
+			if math.Abs(a[r][c]) > math.Abs(a[p][c]) {
+				p = r
+			}
+		}
+		if !(math.Abs(a[p][c]) > 1e-300) {
+			return x, false
+		}
+		a[c], a[p] = a[p], a[c]
+		b[c], b[p] = b[p], b[c]
+		for r := c + 1; r < 4; r++ {
+			f := a[r][c] / a[c][c]
+			for k := c; k < 4; k++ {
+				a[r][k] -= f * a[c][k]
+			}
+			b[r] -= f * b[c]
+		}
+	}
+	for c := 3; c >= 0; c-- {
+		v := b[c]
+		for k := c + 1; k < 4; k++ {
+			v -= a[c][k] * x[k]
+		}
+		x[c] = v / a[c][c]
+	}
+	return x, true
+}
+
+// stepSeen is the share of a step's field, as stepBias gives it, that
+// p's misfit leaves room for: the field would leave the fit missing pred
+// of its signal; the fit misses by RMS, of which the noise accounts for
+// DOF/Chi2 of its square, leaving a share sqrt(RMS² (Chi2 - DOF)/Chi2) /
+// Signal for the model, the part of the chi-square over DOF taken as
+// hiddenChi2 gives it (a tee's fits 18 m before it, 0.024 A off, missed by
+// some 43 of chi-square, under the noise's scatter of 29). Their ratio, at
+// most 1, scales the step's error: a field
+// that is only part of the step's (a tee, whose branch carries the
+// current on beside the line and leaves the fits before it missing a
+// fortieth of what a loss would) moves the fit by the same part. 1 when
+// the fit's chi-square or signal is not known, or its chi-square is more
+// than 3 of its standard deviations under its degrees of freedom.
+// hiddenChi2 is the misfit, in chi-square, a fit's model leaves it,
+// given the excess x of its chi-square over its degrees of freedom, which
+// the noise scatters by sd: the mean of a misfit of at least 0, equally
+// likely at any size, given x, x + sd phi(x/sd)/Phi(x/sd) (the mean of a
+// normal cut at 0). With x at 0 it is 0.8 sd: a misfit the noise can
+// hide is not taken to be none.
+func hiddenChi2(x, sd float64) float64 {
+	if !(sd > 0) {
+		return math.Max(0, x)
+	}
+	u := x / sd
+	c := 0.5 * math.Erfc(-u/math.Sqrt2)
+	if !(c > 1e-12) {
+		return -sd / u // the cut normal's mean as u goes to minus infinity
+	}
+	return x + sd*math.Exp(-u*u/2)/math.Sqrt(2*math.Pi)/c
+}
+
+func stepSeen(p *Placed, pred float64) float64 {
+	if p.DOF <= 0 || !(p.Chi2 > 0) || !(p.Signal > 0) || !(p.RMS > 0) || !(pred > 0) {
+		return 1
+	}
+	dof := float64(p.DOF)
+	if p.Chi2 < dof-3*math.Sqrt(2*dof) {
+		// The noise the chi-square is taken against is well over
+		// what the fit's residuals show (an AC fit's reference
+		// noise, at 0.3 to 0.5 of chi-square per degree of freedom
+		// in the demo): the misfit cannot be told from it.
+		return 1
+	}
+	ex := hiddenChi2(p.Chi2-dof, math.Sqrt(2*dof)) / p.Chi2
+	seen := p.RMS * math.Sqrt(ex) / p.Signal
+	return math.Min(1, seen/pred)
+}
+
 // stepDoubt widens the current and depth sigmas of the stations near a
 // current step among steps (current-step findings), for the field of the
 // current that changes there, which the straight infinite line fitted at
-// each station does not model. A step of dI at distance s along the
-// conductor is the field of a half-line of dI ending there: read at a
-// distance R from the line, it differs from an infinite line's of the
-// same current by dI/2 (1 - s/sqrt(s^2 + R^2)) of current (Biot-Savart,
-// the field of a finite straight segment), so the station before the step
-// reads low and the one after it high. The term is averaged over the
-// station's Reach (its readings' distances from the line, in equal shares
-// of their weight), and widens the current's sigma in quadrature, and the
-// depth's by the same share of the depth (a line's field falls as I/r).
-// In review (rv24f, tallow-brook-fault, 20 seeds) the feeder's stations 10
-// m either side of a found fault read -6.3 and +6.3 of their sigmas off,
-// those 30 m off -2.8 and +2.6, all "sound". The step is placed at its
-// location when the finding gives one, else midway across its bracket.
+// each station does not model: by the error that field gives the fit's
+// current and depth (stepBias), scaled by the share of it the fit's
+// misfit shows (stepSeen), in quadrature. In review (rv24f,
+// tallow-brook-fault, 20 seeds) the feeder's stations 10 m either side of
+// a found fault read -6.3 and +6.3 of their sigmas off, those 30 m off
+// -2.8 and +2.6, all "sound"; widened by the half-line term averaged over
+// the readings' reach, blanket (review rg25a), every station of a tee
+// was widened, some 47 times, its fits downstream (already within 0.01
+// A) among them, and the z of the 51 fits of three seeds spread by only
+// 0.6. The step is placed at its location when the finding gives one,
+// else midway across its bracket.
 func stepDoubt(ps []Placed, steps []Finding) {
 	type st struct{ at, dI float64 }
 	var ss []st
@@ -166,7 +318,8 @@ func stepDoubt(ps []Placed, steps []Finding) {
 	}
 	for k := range ps {
 		p := &ps[k]
-		if !p.usable() || !(math.Abs(p.Current) > 0) {
+		cur := math.Abs(p.Current)
+		if !p.usable() || !(cur > 0) {
 			continue
 		}
 		reach := p.Reach
@@ -176,41 +329,59 @@ func stepDoubt(ps []Placed, steps []Finding) {
 		var best *StepNear
 		for _, s := range ss {
 			d := math.Abs(p.Chainage - s.at)
-			m := 0.0
-			for _, r := range reach {
-				m += 1 - d/math.Hypot(d, r)
+			dc, dd, pred := stepBias(reach, d, s.dI, cur)
+			seen := stepSeen(p, pred)
+			sn := &StepNear{Step: s.dI, Distance: d, Seen: seen,
+				Share: seen * math.Abs(dc) / cur}
+			if dep := math.Abs(p.Depth); dep > 0 {
+				sn.DepthShare = seen * math.Abs(dd) / dep
 			}
-			m /= float64(len(reach))
-			share := s.dI / 2 * m / math.Abs(p.Current)
-			if best == nil || share > best.Share {
-				best = &StepNear{Step: s.dI, Distance: d, Share: share}
+			if best == nil || sn.Share > best.Share {
+				best = sn
 			}
 		}
 		// Under 0.3 of the fit's own sigma widens it by under 5%: left.
-		// Past StepReachDepths depths from the step a term under the
+		// Past StepReachDepths depths from the step an error under the
 		// fit's own sigma is left too: the demo's feeder had stations up
 		// to 88 m (70 depths) from its step widened 10-30% by terms of
 		// 0.0013-0.0018 A on 42 A, beyond what a fit's straight line
-		// is held to; within reach, or with a term at least the
-		// sigma, the station is widened as before.
-		if best == nil || !(best.Share*math.Abs(p.Current) > 0.3*p.CurrentSigma) {
+		// is held to; within reach, or with an error at least the
+		// sigma, the station is widened.
+		if best == nil || !(best.Share*cur > 0.3*p.CurrentSigma) {
 			continue
 		}
-		if best.Distance > StepReachDepths*math.Abs(p.Depth) && !(best.Share*math.Abs(p.Current) >= p.CurrentSigma) {
+		if best.Distance > StepReachDepths*math.Abs(p.Depth) && !(best.Share*cur >= p.CurrentSigma) {
 			continue
+		}
+		// A fit widened for its misfit (modelDoubt) already counts the
+		// step's field its misfit shows: the step's error widens it only
+		// by what it adds to the misfit's, ModelErrFactor Share.
+		if md := p.Model; md != nil {
+			mc, mdp := ModelErrFactor*md.Share, ModelErrFactor*md.Share
+			if best.Share <= mc && best.DepthShare <= mdp {
+				continue
+			}
+			best.Share = math.Sqrt(math.Max(0, best.Share*best.Share-mc*mc))
+			best.DepthShare = math.Sqrt(math.Max(0, best.DepthShare*best.DepthShare-mdp*mdp))
 		}
 		best.FitCurrentSigma, best.FitDepthSigma = p.CurrentSigma, p.DepthSigma
 		best.CurrentSigma = best.Widen(p.CurrentSigma, p.Current)
-		best.DepthSigma = best.Widen(p.DepthSigma, p.Depth)
+		best.DepthSigma = best.WidenDepth(p.DepthSigma, p.Depth)
 		p.CurrentSigma, p.DepthSigma = best.CurrentSigma, best.DepthSigma
 		p.StepNear = best
 	}
 }
 
-// Widen is a sigma of a fitted value as sn widens it: Share of the value
-// in quadrature.
+// Widen is a current's sigma as sn widens it: Share of the current in
+// quadrature.
 func (sn *StepNear) Widen(sigma, value float64) float64 {
 	return math.Hypot(sigma, sn.Share*math.Abs(value))
+}
+
+// WidenDepth is a depth's sigma as sn widens it: DepthShare of the depth
+// in quadrature.
+func (sn *StepNear) WidenDepth(sigma, depth float64) float64 {
+	return math.Hypot(sigma, sn.DepthShare*math.Abs(depth))
 }
 
 // StepNote words a StepNear for a group's notes.

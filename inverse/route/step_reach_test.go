@@ -5,22 +5,19 @@ import (
 	"testing"
 )
 
-// TestStepDoubtReach: a current step's half-line term (Biot-Savart, the
+// TestStepDoubtReach: a current step's error (stepBias, Biot-Savart, the
 // field of a semi-infinite straight line against an infinite one) widens
 // a station within StepReachDepths of its depths from the step when the
-// term is over 0.3 of the fit's own current sigma, and a farther one only
-// when the term is at least that sigma. Invented fixture after the demo's
+// error is over 0.3 of the fit's own current sigma, and a farther one only
+// when the error is at least that sigma. Invented fixture after the demo's
 // feeder (a 9.1 A step on 42 A at 1.2 m): its station 88 m from the step
 // had been widened by a term of about half its sigma (0.0029 to 0.0032 A).
 func TestStepDoubtReach(t *testing.T) {
 	const dI, current, depth = 9.1, 42.0, 1.2
 	reach := []float64{1.2, 3, 6}
 	term := func(d float64) float64 {
-		m := 0.0
-		for _, r := range reach {
-			m += 1 - d/math.Hypot(d, r)
-		}
-		return dI / 2 * m / float64(len(reach))
+		dc, _, _ := stepBias(reach, d, dI, current)
+		return math.Abs(dc)
 	}
 	step := Finding{Kind: KindCurrentStep, From: 95, To: 105,
 		Values: []Value{{Name: "location (chainage)", Value: 100}, {Name: "step", Value: -dI}}}
