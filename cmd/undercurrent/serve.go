@@ -34,6 +34,8 @@ type serveOptions struct {
 	password string
 	token    string
 	logLevel string
+	// debugAddr serves Go's runtime profiles when given (servedebug.go).
+	debugAddr string
 	// brokerWait bounds the wait at start for a --broker that does not
 	// answer yet.
 	brokerWait time.Duration
@@ -91,7 +93,9 @@ once, marked cleared (with the window's value and the peak; not counted in
 uc_alarms_total), when it ends. POST /api/v1/assets/ASSET/recommission and
 POST /api/v1/assets/ASSET/restart?start= (re-read the asset from "new", a
 duration back such as "24h", an RFC 3339 time or "retained") need the
-service token.
+service token. --debug-addr 127.0.0.1:6060 serves Go's runtime profiles
+(/debug/pprof/, for measuring memory and CPU) on a listener of its own,
+on loopback only; it is off unless given.
 
 Examples:
   undercurrent serve --config testdata/site/harrow-fen.toml --data /var/lib/undercurrent
@@ -112,6 +116,7 @@ Examples:
 			fs.StringVar(&o.tlsKey, "tls-key", "", "client key PEM `FILE` for the broker (default [broker] tls_key)")
 			fs.StringVar(&o.creds, "credentials", "", "NATS credentials `FILE` for the broker (default [broker] credentials)")
 			fs.StringVar(&o.logLevel, "log-level", "info", "log `LEVEL`: debug, info, warn or error")
+			fs.StringVar(&o.debugAddr, "debug-addr", "", "serve Go's runtime profiles (pprof) at http://`ADDR`/debug/pprof/; loopback only, off by default")
 		},
 		run: func(ctx context.Context, fs *pflag.FlagSet, args []string, stdout, stderr io.Writer) error {
 			return runServe(ctx, &o, args, stderr)
@@ -162,6 +167,14 @@ func runServe(ctx context.Context, o *serveOptions, args []string, stderr io.Wri
 	go newSiteWatch(o.config, siteDigest, log).run(hctx, watch.C)
 	if err := checkHTTPAddr(cmp.Or(o.http, site.Service.HTTP)); err != nil {
 		return err
+	}
+	if o.debugAddr != "" {
+		ln, err := listenDebug(o.debugAddr)
+		if err != nil {
+			return err
+		}
+		defer ln.Close()
+		go serveDebug(hctx, ln, log)
 	}
 	auth := broker.Auth{User: site.Broker.User, Password: site.Broker.Password, Token: site.Broker.Token, UserFrom: site.Path + " [broker] user",
 		CAFile: cmp.Or(o.tlsCA, site.Broker.TLSCA), CertFile: cmp.Or(o.tlsCert, site.Broker.TLSCert), KeyFile: cmp.Or(o.tlsKey, site.Broker.TLSKey),
