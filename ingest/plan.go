@@ -222,7 +222,7 @@ func (p *plan) naiveTime(where, what string, typed bool) {
 		return
 	}
 	p.naiveWarned = true
-	fix := "write the offset into the times (2026-04-21T09:40:00+01:00) or give it (WithTimeOffset, on the command line --time-offset +01:00), or their zone, when the log crosses a change of the clocks (WithTimeZone, on the command line --time-zone Europe/Berlin)"
+	fix := "write the offset into the times (2026-04-21T09:40:00+01:00) or give it (WithTimeOffset, on the command line --time-offset +01:00); if the log crosses a change of the clocks, give its zone instead (WithTimeZone, on the command line --time-zone Europe/Berlin)"
 	if typed {
 		fix = "store them as timestamps with a time zone, or give their zone (WithTimeZone, on the command line --time-zone Europe/Berlin) or offset (WithTimeOffset, on the command line --time-offset +01:00)"
 	}

@@ -706,7 +706,6 @@ func cliWording(s string) string {
 	s = strings.ReplaceAll(s, "(try units ", "(try --unit ")
 	s = strings.ReplaceAll(s, "(WithTimeOffset, on the command line --time-offset +01:00)", "with --time-offset +01:00")
 	s = strings.ReplaceAll(s, "(WithTimeZone, on the command line --time-zone Europe/Berlin)", "with --time-zone Europe/Berlin")
-	s = strings.ReplaceAll(s, "(WithTimeOffset, on the command line --time-offset +01:00)", "with --time-offset +01:00")
 	s = strings.ReplaceAll(s, "map time to both, DATE+TIME (on the command line --column time=DATE+TIME)", "--column time=DATE+TIME")
 	s = strings.ReplaceAll(s, "(try columns ", "(try --column ")
 	s = strings.ReplaceAll(s, "the option WithDecimalComma(true), on the command line --decimal-comma", "--decimal-comma")

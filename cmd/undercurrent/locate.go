@@ -346,6 +346,9 @@ func (o *locateOptions) check(fs *pflag.FlagSet) error {
 					// "bx=mV,by=mV", not the slice's "[bx=mV,by=mV]".
 					v = strings.Join(sl.GetSlice(), ",")
 				}
+				if f.Name == "sensor-height" {
+					v = heightsGiven(o.sensorHeights)
+				}
 				o.given[f.Name] = v
 			}
 		})
@@ -353,6 +356,27 @@ func (o *locateOptions) check(fs *pflag.FlagSet) error {
 	// Last: it takes the coils' voltage units out of --unit, which the
 	// settings above record as given.
 	return o.coil.check(o)
+}
+
+// heightsGiven records --sensor-height in the settings as numbers ("0.3",
+// "day2.csv=0.25"), as the other number flags are, whatever way they were
+// typed (".30", "3e-1").
+func heightsGiven(vals []string) string {
+	out := make([]string, len(vals))
+	for i, v := range vals {
+		log, h, named := "", v, false
+		if j := strings.LastIndexByte(v, '='); j >= 0 {
+			log, h, named = v[:j], v[j+1:], true
+		}
+		if x, err := strconv.ParseFloat(strings.TrimSpace(h), 64); err == nil {
+			h = strconv.FormatFloat(x, 'g', -1, 64)
+		}
+		if named {
+			h = log + "=" + h
+		}
+		out[i] = h
+	}
+	return strings.Join(out, ",")
 }
 
 func init() {
