@@ -242,11 +242,13 @@ func BenchmarkLocateRoute31(b *testing.B) {
 		b.Fatal(err)
 	}
 	b.ResetTimer()
+	start := benchCPU()
 	for b.Loop() {
 		if _, err := runLocate(b.Context(), o, []string{log}, nil); err != nil {
 			b.Fatal(err)
 		}
 	}
+	reportBenchCPU(b, start)
 }
 
 // BenchmarkLocateScaling shows how locate's time grows with the readings
@@ -261,11 +263,13 @@ func BenchmarkLocateScaling(b *testing.B) {
 				if err := o.check(nil); err != nil {
 					b.Fatal(err)
 				}
+				start := benchCPU()
 				for b.Loop() {
 					if _, err := runLocate(b.Context(), o, []string{log}, nil); err != nil {
 						b.Fatal(err)
 					}
 				}
+				reportBenchCPU(b, start)
 			})
 		}
 	}
