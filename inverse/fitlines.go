@@ -411,7 +411,7 @@ func (f *fitter) run() (*Result, error) {
 			if s.Criterion == AIC {
 				crit = f.score(c).AIC
 			}
-			if r, rc := f.findRamp(c); r != nil && rc < crit {
+			if r, rc := f.findRamp(c, crit); r != nil && rc < crit {
 				ramp = r
 				if rb := f.rampCandidate(c, r); rb != nil {
 					c = rb
@@ -587,7 +587,11 @@ func (f *fitter) run() (*Result, error) {
 	// same criterion (checkRamp, CurrentRampNote).
 	var ramp *rampFit
 	if c1 := acceptedFit[1]; c1 != nil && best != nil && best.keptFrom == nil {
-		r, rc := f.findRamp(c1)
+		ceiling := bestScore
+		if len(best.sp.geom) == 1 {
+			ceiling = accepted[1]
+		}
+		r, rc := f.findRamp(c1, ceiling)
 		if r != nil {
 			if kb := len(best.sp.geom); kb == 1 && rc < accepted[1] || kb > 1 && rc < bestScore {
 				ramp = r

@@ -303,8 +303,14 @@ func (f *fitter) rampCandidate(c1 *candidate, r *rampFit) *candidate {
 // (checkRamp): a ramp, and a ramp with a curvature in time (a slow swing
 // over a good part of its period is not straight), the better by the
 // criterion taken. It returns the fit and its criterion when its change is
-// over rampK sigmas and rampMinChange, else nil.
-func (f *fitter) findRamp(c1 *candidate) (*rampFit, float64) {
+// over rampK sigmas and rampMinChange, else nil. ceiling is the criterion
+// the caller needs the ramp fit to beat: when the screen (rampMayPass)
+// shows that neither fit can come near it, neither is run.
+func (f *fitter) findRamp(c1 *candidate, ceiling float64) (*rampFit, float64) {
+	if rampScreenOn && !f.rampMayPass(c1, ceiling) {
+		return nil, 0
+	}
+	rampFullChecks.Add(1)
 	r := f.checkRamp(c1, 1)
 	if r2 := f.checkRamp(c1, 2); r2 != nil && (r == nil || f.rampScore(c1, r2) < f.rampScore(c1, r)) {
 		r = r2

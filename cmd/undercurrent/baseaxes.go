@@ -693,7 +693,7 @@ func levelMisfit(g *group, res *inverse.Result) float64 {
 	}
 	// Pooled over east and north (trackScatterPooled): the rounding's
 	// step bounds its error below.
-	_, plan, up, _ := trackScatterPooled(g.points, sensorTracks(g.points))
+	_, plan, up, _ := trackScatterPooled(g.points, g.memo.sensorTracks(g.points))
 	q := positionQuantum(g.points) / math.Sqrt(12)
 	plan, up = math.Max(plan, q), math.Max(up, q)
 	if !(plan > 0 || up > 0) {

@@ -104,7 +104,7 @@ func (g *group) measuredNoise(ac bool) float64 {
 	if ac {
 		return medianOf(g.wsigma)
 	}
-	return tracksNoise(g.fields, sensorTracks(g.points))
+	return g.memo.noise(g.points, g.fields)
 }
 
 // dcMeasuredNoise is the median over the DC groups of each group's

@@ -816,6 +816,9 @@ type group struct {
 	// degrees, its fit still allows (looseTurnBound).
 	looseTurn float64
 	looseLog  string // the log whose frequency check set loose
+	// memo keeps the sensor tracks and DC measured noise of the readings
+	// (groupMemo); nil computes them at every call.
+	memo *groupMemo
 }
 
 // problem is the group's readings as an inverse problem.
@@ -2324,7 +2327,7 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 		}
 		g := index[key]
 		if g == nil {
-			g = &group{key: key, from: s.Source}
+			g = &group{key: key, from: s.Source, memo: &groupMemo{}}
 			index[key] = g
 			sv.groups = append(sv.groups, g)
 		}

@@ -310,7 +310,7 @@ func positionJitter(sv *survey, fits []report.Fit) string {
 		if g.res == nil || i >= len(fits) {
 			continue
 		}
-		tracks := sensorTracks(g.points)
+		tracks := g.memo.sensorTracks(g.points)
 		plan, up, spacing := trackScatter(g.points, tracks)
 		if !(plan > 0 || up > 0) {
 			continue
