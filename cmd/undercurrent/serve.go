@@ -224,7 +224,7 @@ func runServe(ctx context.Context, o *serveOptions, args []string, stderr io.Wri
 	if o.broker != "" {
 		// A broker started together with serve may not listen yet: wait
 		// for it (up to --broker-wait), saying so once, instead of
-		// exiting at once (rv25 t9).
+		// exiting at once (review rv24d, finding 9).
 		nc, err = broker.ConnectWait(ctx, url, "undercurrent serve", auth, max(o.brokerWait, 0), func(msg string) { log.Info(msg) })
 	} else {
 		nc, err = broker.Connect(url, "undercurrent serve", auth)

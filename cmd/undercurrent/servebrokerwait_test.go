@@ -13,7 +13,7 @@ import (
 	"undercurrent/ingest/broker"
 )
 
-// serve --broker with the broker not up yet (rv25 t9): before, serve
+// serve --broker with the broker not up yet (review rv24d, finding 9): before, serve
 // exited within a second with "nats: no servers available for
 // connection". Now it says once that it waits, comes up when the broker
 // does, and, when none comes within --broker-wait, ends with an error

@@ -13,7 +13,7 @@ import (
 // dead-letter stream a moment ago, with a bound and no mark (as those
 // versions leave it), waited deadLetterMarkWait (10 s) logging "waiting
 // up to 10s for the dead-letter bound another serve is finding" although
-// nothing would ever mark it (rv25 t10). Only a stream made by a probe
+// nothing would ever mark it (review rv24d, finding 10). Only a stream made by a probe
 // of this version (deadLetterProbeKey) is waited for now: Setup probes
 // the older stream's bound at once and says nothing of waiting.
 func TestDeadLetterOlderStreamNotWaitedFor(t *testing.T) {

@@ -9,7 +9,7 @@ import (
 	"github.com/prometheus/client_golang/prometheus"
 )
 
-// A broker outage used to leave the operator guessing (rv25 t8): the log
+// A broker outage used to leave the operator guessing (review rv24d, finding 8): the log
 // repeated "heartbeat failed err=context deadline exceeded" every quarter
 // lease TTL and never said the connection was lost or back, API queries
 // answered 502 after their 5-10 s timeouts, and uc_pending_messages went

@@ -15,7 +15,7 @@ import (
 	"undercurrent/ingest/broker"
 )
 
-// A broker outage under the service (rv25 t8). Before: the log repeated
+// A broker outage under the service (review rv24d, finding 8). Before: the log repeated
 // "heartbeat failed" at every round and never said the connection was
 // lost or back, API queries answered 502 after their timeouts,
 // uc_pending_messages kept its last value and no metric showed the
