@@ -12,7 +12,7 @@ import (
 // ConnectWait is Connect that, while no server at url answers (nothing
 // listens there yet: nats.ErrNoServers), tries again for up to wait, so
 // that a pipeline started together with its broker does not exit before
-// the broker is up (rv25 t9: serve --broker exited within a second). It
+// the broker is up (review rv24d, finding 9: serve --broker exited within a second). It
 // tells notify (when set) once that it waits. Any other failure (a
 // refused login, a TLS or URL problem) is returned at once; after wait,
 // or when ctx ends, the error names the URLs tried and says to start the

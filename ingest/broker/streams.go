@@ -322,7 +322,7 @@ const deadLetterBoundKey = "undercurrent.dead_letter_bound"
 // probe (createDeadLetterBound), whose maker goes on to find its bound
 // and mark it: another Setup waits for that mark only on a stream that
 // carries this one. A stream made unmarked by a serve of an earlier
-// version is probed at once (rv25 t10: a new serve joining an older
+// version is probed at once (review rv24d, finding 10: a new serve joining an older
 // serve's broker waited the whole deadLetterMarkWait "for the bound
 // another serve is finding" although nothing was finding it).
 const deadLetterProbeKey = "undercurrent.dead_letter_probe"

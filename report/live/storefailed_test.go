@@ -87,7 +87,7 @@ func TestStoreWriteFailureLoggedOnce(t *testing.T) {
 	}
 	// Several more rounds (heartbeats failing) after the failure was seen,
 	// counted by the service's run of failed beats: the log says the run
-	// once (rv25 t8: it had a "heartbeat failed" line per round).
+	// once (review rv24d, finding 8: it had a "heartbeat failed" line per round).
 	failed := func() int {
 		svc.beats.mu.Lock()
 		defer svc.beats.mu.Unlock()
