@@ -431,7 +431,7 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 		case k == MetaOrigin:
 			var g Geodetic
 			if _, err := fmt.Sscanf(v, "%g %g %g", &g.Lat, &g.Lon, &g.H); err == nil {
-				if _, m := latLonProblem(g.Lat, g.Lon, originSwapFix); m != "" {
+				if m := originProblem(g); m != "" {
 					return nil, fileErr(file, nil, "its origin (metadata %s, in a CSV log the line \"# %s: %s\"): %s", MetaOrigin, MetaOrigin, v, m)
 				}
 				g = p.wrapOrigin(g, "metadata "+MetaOrigin)
