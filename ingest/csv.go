@@ -1266,6 +1266,13 @@ func (r *csvReader) parseResult(j csvJob, rb *rawBatch, err error) csvResult {
 		}
 		return csvResult{err: lineErr(r.name, line, col, "", "%s", msg), firstTime: math.NaN(), lastTime: math.NaN()}
 	}
+	if i, col, msg := pl.checkPlausible(&rb.f, rb.n); i >= 0 {
+		line := 0
+		if i < len(rb.line) {
+			line = rb.line[i]
+		}
+		return csvResult{err: lineErr(r.name, line, col, "", "%s", msg), firstTime: math.NaN(), lastTime: math.NaN()}
+	}
 	pl.transform(rb)
 	var noFixAt []string
 	for _, ln := range rb.noFixLine {
