@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"math"
 	"strings"
+
 	"undercurrent/ingest"
 )
 
@@ -108,24 +109,6 @@ func DecodeLimit(subject, contentType string, data []byte, maxDecoded int64) (*B
 		return nil, fmt.Errorf("%w: %w", ErrMalformed, err)
 	}
 	return b, nil
-}
-
-// MaxTimeS bounds |time| of a live reading, s: 1e11 s after 1970 is past
-// the year 5000. Live times are Unix seconds; one beyond it is a corrupt
-// value, a time in ms, us or ns, or a rate near zero in a JSON batch
-// ("rate": 1e-300 gave times near 1e300, accepted; "t0": 1e300 was
-// refused as "1e+300 does not follow 1e+300", past float precision).
-const MaxTimeS = 1e11
-
-// CheckTime returns an error naming the first row whose time is beyond
-// +-MaxTimeS. where names the message in errors.
-func (b *Batch) CheckTime(where string) error {
-	for i, t := range b.Time {
-		if math.Abs(t) > MaxTimeS {
-			return fmt.Errorf("broker: %s: row %d: column time: %.4g s is beyond +-%g s (the year 5000 as a Unix time): a corrupt value, a time not in seconds, or a rate near zero", where, i+1, t, float64(MaxTimeS))
-		}
-	}
-	return nil
 }
 
 func looksJSON(data []byte) bool {
@@ -281,8 +264,7 @@ func lineCol(data []byte, off int64) (line, col int) {
 }
 
 // Validate checks that the batch is non-empty, that its columns have the
-// same length, that every value is finite, that times are within
-// +-MaxTimeS and that they strictly increase.
+// same length, that every value is finite and that times strictly increase.
 // where names the message in errors (a subject, or a file and batch).
 func (b *Batch) Validate(where string) error {
 	n := len(b.Time)
@@ -306,9 +288,6 @@ func (b *Batch) Validate(where string) error {
 				return fmt.Errorf("broker: %s: row %d: column %s: %v is not a finite number", where, i+1, c.name, x)
 			}
 		}
-	}
-	if err := b.CheckTime(where); err != nil {
-		return err
 	}
 	for i := 1; i < n; i++ {
 		if !(b.Time[i] > b.Time[i-1]) {
