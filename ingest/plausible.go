@@ -38,6 +38,9 @@ const (
 // bounds above, its column's header name and the message; row -1 when
 // none. NaN and infinite values are left to the readers' own checks.
 func (p *plan) checkPlausible(f *[nCanon][]float64, n int) (row int, col, msg string) {
+	if p.cfg.keepImplausible {
+		return -1, "", ""
+	}
 	for _, b := range []struct {
 		c     int
 		bound float64
