@@ -10,6 +10,7 @@ import (
 	"io"
 	"math"
 	"os"
+	"strconv"
 	"strings"
 	"time"
 
@@ -342,6 +343,9 @@ func (c *Calibration) Validate() error {
 		if math.IsNaN(c.Offset[k]) || math.IsInf(c.Offset[k], 0) {
 			return fmt.Errorf("offset_nt[%d] is %g", k, c.Offset[k])
 		}
+		if math.Abs(c.Offset[k]) > MaxOffsetNT {
+			return fmt.Errorf("offset_nt[%d] is %g nT, beyond +-%g nT (1 mT, the range of a survey fluxgate): a corrupt value or an offset in another unit", k, c.Offset[k], float64(MaxOffsetNT))
+		}
 		for j := 0; j < 3; j++ {
 			if v := c.Matrix[k][j]; math.IsNaN(v) || math.IsInf(v, 0) {
 				return fmt.Errorf("matrix[%d][%d] is %g", k, j, v)
@@ -366,8 +370,17 @@ func (c *Calibration) Validate() error {
 	if math.Abs(det) < 1e-6 {
 		return fmt.Errorf("matrix is singular (determinant %g)", det)
 	}
+	if det < 0 {
+		// calibrate writes the identity (flip, zero) or a symmetric
+		// positive-definite correction (ellipsoid): never a reflection.
+		return fmt.Errorf("matrix has a negative determinant (%g): it mirrors an axis, which no calibration written by the calibrate command does (an edited file?)", det)
+	}
 	return nil
 }
+
+// MaxOffsetNT bounds a calibration's offsets, nT: 1 mT, the range of a
+// survey fluxgate. An offset of 1e12 nT was accepted before.
+const MaxOffsetNT = 1e6
 
 // Save writes c to path as indented JSON, atomically. A nil c is an error,
 // and nothing is written.
@@ -397,6 +410,10 @@ func Load(path string) (*Calibration, error) {
 	if err != nil {
 		return nil, fmt.Errorf("calibrate: %w", err)
 	}
+	// A UTF-8 byte order mark, as some editors save JSON, is not JSON:
+	// before, it was refused as "invalid character 'ï'". CSV and
+	// IAGA-2002 files are read with one too.
+	data = bytes.TrimPrefix(data, []byte("\xef\xbb\xbf"))
 	var probe struct {
 		Version *int `json:"version"`
 	}
@@ -416,6 +433,10 @@ func Load(path string) (*Calibration, error) {
 	dec.DisallowUnknownFields()
 	var c Calibration
 	if err := dec.Decode(&c); err != nil {
+		var pe *time.ParseError
+		if errors.As(err, &pe) {
+			return nil, timeError(path, data, pe)
+		}
 		return nil, jsonError(path, data, err)
 	}
 	if c.Created.IsZero() {
@@ -511,6 +532,11 @@ func jsonError(path string, data []byte, err error) error {
 	}
 	line := 1 + bytes.Count(data[:off], []byte("\n"))
 	col := int(off) - bytes.LastIndexByte(data[:off], '\n')
+	if se != nil && off == int64(len(data)) && strings.HasPrefix(strings.TrimSpace(string(data)), "{") {
+		// The JSON ends inside its object: a file cut short, not some
+		// other kind of file.
+		return fmt.Errorf("calibrate: %s:%d:%d: the file ends here, inside its JSON: a calibration file cut short (an interrupted copy?): copy it again whole, or run calibrate again", path, line, col)
+	}
 	if se != nil {
 		// The decoder's own words ("invalid character 'a' in literal
 		// null") do not say what the file should be.
@@ -537,4 +563,18 @@ func jsonKind(k string) string {
 		return "an object"
 	}
 	return k
+}
+
+// timeError words a date the decoder could not read (created,
+// logs_taken.first or .last), at its line and column when its text is
+// found. Before, Go's layout text was shown: parsing time "not a date" as
+// "2006-01-02T15:04:05Z07:00": cannot parse ...
+func timeError(path string, data []byte, pe *time.ParseError) error {
+	where := path
+	if i := bytes.Index(data, []byte(strconv.Quote(pe.Value))); i >= 0 {
+		line := 1 + bytes.Count(data[:i], []byte("\n"))
+		col := i - bytes.LastIndexByte(data[:i], '\n')
+		where = fmt.Sprintf("%s:%d:%d", path, line, col)
+	}
+	return fmt.Errorf("calibrate: %s: %q is not a date and time: created and logs_taken's first and last are RFC 3339 times such as 2026-04-21T08:10:00Z", where, pe.Value)
 }

@@ -609,6 +609,17 @@ func (r *arrowReader) convert(rec arrow.RecordBatch) (arrow.RecordBatch, error) 
 				}
 			}
 		}
+		var f [nCanon][]float64
+		for i, c := range pl.out {
+			if c != cGroup {
+				f[c] = cols[i].(*array.Float64).Float64Values()
+			}
+		}
+		if i, col, msg := pl.checkPlausible(&f, n); i >= 0 {
+			e := rowErr(r.name, r.batch, i, col, "", "%s", msg)
+			e.FileRow = r.start + int64(i)
+			return nil, e
+		}
 		if err := r.checkTime(cols[0].(*array.Float64).Float64Values(), rec.Column(pl.src[cTime])); err != nil {
 			return nil, err
 		}
@@ -633,6 +644,11 @@ func (r *arrowReader) convert(rec arrow.RecordBatch) (arrow.RecordBatch, error) 
 		}
 	}
 	if i, col, msg := pl.checkLatLon(rb); i >= 0 {
+		e := rowErr(r.name, r.batch, i, col, "", "%s", msg)
+		e.FileRow = r.start + int64(i)
+		return nil, e
+	}
+	if i, col, msg := pl.checkPlausible(&rb.f, rb.n); i >= 0 {
 		e := rowErr(r.name, r.batch, i, col, "", "%s", msg)
 		e.FileRow = r.start + int64(i)
 		return nil, e

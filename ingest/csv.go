@@ -864,6 +864,17 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch, plain bool) 
 			rb.n++
 			continue
 		}
+		if i := bytes.IndexByte(ln, 0); i >= 0 {
+			// NUL bytes amid a line's text: a damaged stretch, as a
+			// logger that lost power mid-write leaves. Before, it was
+			// reported as the short row or bad number it made.
+			fields = splitFields(ln, r.delim, r.ws, fields[:0])
+			col, text := "", string(ln)
+			if k := len(splitFields(ln[:i], r.delim, r.ws, nil)) - 1; k >= 0 && k < len(fields) && k < len(pl.header) {
+				col, text = pl.header[k], string(trimField(fields[k]))
+			}
+			return lineErr(r.name, line, col, text, "%s holds NUL bytes (from byte %d of the line): binary bytes amid the text, a damaged stretch of the file (a logger that lost power mid-write?): delete or repair the damaged lines", quoteText(text), i+1)
+		}
 		fields = splitFields(ln, r.delim, r.ws, fields[:0])
 		if len(fields) != r.ncols {
 			if err := r.repeatedHeader(ln, line); err != nil {
@@ -1246,6 +1257,13 @@ func (r *csvReader) parseResult(j csvJob, rb *rawBatch, err error) csvResult {
 		return res
 	}
 	if i, col, msg := pl.checkLatLon(rb); i >= 0 {
+		line := 0
+		if i < len(rb.line) {
+			line = rb.line[i]
+		}
+		return csvResult{err: lineErr(r.name, line, col, "", "%s", msg), firstTime: math.NaN(), lastTime: math.NaN()}
+	}
+	if i, col, msg := pl.checkPlausible(&rb.f, rb.n); i >= 0 {
 		line := 0
 		if i < len(rb.line) {
 			line = rb.line[i]

@@ -148,7 +148,20 @@ func (r *csvReader) cutLastLine(data []byte, line int, tail []byte) (keep int, w
 	}
 	cut, open, _ := r.lastRecordEnd(data)
 	if open >= 0 {
-		return keep, "" // an unterminated quote, refused as such
+		// A quote opened on the last line, which has no line end: the
+		// line cut inside a quoted value ("T0 for "T01"), left out with
+		// the same warning as one cut outside quotes. Before, it was
+		// refused outright. A quote that runs on over line ends may be
+		// a quote left open far up the file: refused as such.
+		if bytes.IndexByte(data[cut+1:], '\n') >= 0 || r.pl == nil {
+			return keep, ""
+		}
+		at := line + bytes.Count(data[:cut+1], []byte{'\n'})
+		where := fmt.Sprintf("%s:%d", r.name, at)
+		if f := len(splitFields(data[cut+1:open], r.delim, false, nil)) - 1; f >= 0 && f < len(r.pl.header) {
+			where += ": column " + r.pl.header[f]
+		}
+		return cut + 1, fmt.Sprintf("%s: the last line has no line end and its quoted value %s is not closed: left out as a line cut short (a logger or copy that stopped); if it is whole, close the quote and end the file with a line end to read it", where, quoteText(string(data[open:])))
 	}
 	ln := bytes.TrimRight(data[cut+1:], "\r")
 	if r.skipped(ln) {

@@ -654,7 +654,7 @@ func TestCSVSpreadsheetExports(t *testing.T) {
 			}
 		}
 		_, err := ReadSamples(writeFile(t, "log.csv", "time,bx,by,bz\n0,458.25,1,2\n1,45\x00\x00\x009.5,1,2\n"))
-		wantErr(t, err, `log.csv:3: column bx: "45\x00\x00\x009.5" is not a number`)
+		wantErr(t, err, `log.csv:3: column bx: "45\x00\x00\x009.5" holds NUL bytes (from byte 5 of the line)`)
 	})
 
 	// SUB (0x1A, ASCII), the end-of-file mark of CP/M and MS-DOS text,

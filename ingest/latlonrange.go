@@ -128,8 +128,34 @@ func originLineErr(file string, line int, k, v string) error {
 	if _, err := fmt.Sscanf(v, "%g %g %g", &g.Lat, &g.Lon, &g.H); err != nil {
 		return nil
 	}
-	if _, m := latLonProblem(g.Lat, g.Lon, originSwapFix); m != "" {
+	if m := originProblem(g); m != "" {
 		return lineErr(file, line, "", "", "the origin line \"# %s: %s\": %s", MetaOrigin, v, m)
 	}
 	return nil
+}
+
+// maxOriginHeight bounds an origin's height, m.
+const maxOriginHeight = 1e5
+
+// originProblem says what is wrong with an origin read from a file ("" if
+// nothing): a latitude or longitude out of range, or a value that is not
+// finite or a height beyond +-100 km. Before, "nan nan nan" was taken, and
+// locate failed after its fits with "internal error: the result document
+// is not valid: frame.origin.lat_deg is NaN".
+func originProblem(g Geodetic) string {
+	for _, c := range []struct {
+		what string
+		v    float64
+	}{{"latitude", g.Lat}, {"longitude", g.Lon}, {"height", g.H}} {
+		if math.IsNaN(c.v) || math.IsInf(c.v, 0) {
+			return fmt.Sprintf("%s %s is not a number: give latitude and longitude in decimal degrees and the height in metres (LAT LON HEIGHT)", c.what, num(c.v))
+		}
+	}
+	if _, m := latLonProblem(g.Lat, g.Lon, originSwapFix); m != "" {
+		return m
+	}
+	if math.Abs(g.H) > maxOriginHeight {
+		return fmt.Sprintf("height %s m is beyond +-%g m of the ellipsoid: give the height in metres", num(g.H), maxOriginHeight)
+	}
+	return ""
 }

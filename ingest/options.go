@@ -74,6 +74,7 @@ type config struct {
 	origin            Geodetic
 	originMode        originMode
 	allowMissing      bool
+	keepImplausible   bool // WithImplausibleValues
 	timeOptional      bool // a log without a time column is read, its times NaN (WithTimeOptional)
 	currentRecord     bool // time and current are required, not the field (WithCurrentRecord)
 	allowBackwards    bool
@@ -242,6 +243,12 @@ func WithOriginMean() Option { return func(c *config) { c.originMode = originMea
 // default; given after WithOrigin or WithOriginMean, it undoes them (a
 // look at a log's first reading with otherwise the same options).
 func WithOriginFirst() Option { return func(c *config) { c.originMode = originFirst } }
+
+// WithImplausibleValues reads finite values no survey gives (|B| above
+// 1e17 nT, a time beyond 1e20 s, a position beyond 1e8 m: checkPlausible)
+// as they are, rather than refusing the log at the first: for replay,
+// which sends such readings on for the service to refuse.
+func WithImplausibleValues(ok bool) Option { return func(c *config) { c.keepImplausible = ok } }
 
 // WithAllowMissing accepts missing values in numeric columns as NaN: empty
 // cells, Arrow nulls and the markers NaN, NA, N/A, #N/A, null, None, "-"

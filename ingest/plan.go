@@ -431,7 +431,7 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 		case k == MetaOrigin:
 			var g Geodetic
 			if _, err := fmt.Sscanf(v, "%g %g %g", &g.Lat, &g.Lon, &g.H); err == nil {
-				if _, m := latLonProblem(g.Lat, g.Lon, originSwapFix); m != "" {
+				if m := originProblem(g); m != "" {
 					return nil, fileErr(file, nil, "its origin (metadata %s, in a CSV log the line \"# %s: %s\"): %s", MetaOrigin, MetaOrigin, v, m)
 				}
 				g = p.wrapOrigin(g, "metadata "+MetaOrigin)
@@ -484,6 +484,9 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 			return nil, fileErr(file, nil, "mapping %s=%s: no column %q (columns found: %s)", canonNames[c], name, name, columnList(header))
 		}
 		p.src[c] = i
+	}
+	if err := p.checkSharedSource(headerLine); err != nil {
+		return nil, err
 	}
 	taken := map[int]bool{}
 	for _, i := range p.src {
@@ -1454,4 +1457,40 @@ func headerExample(n int) string {
 		}
 	}
 	return strings.Join(names, ",")
+}
+
+// checkSharedSource refuses a column named by the mappings of two
+// canonical columns (bx=Bx,by=Bx): a reader feeds each source column to
+// one canonical column, and such a mapping is far more likely a typo than
+// a wish to read one column twice. Before, the CSV reader read zeros into
+// one of the two, in silence.
+func (p *plan) checkSharedSource(headerLine int) error {
+	by := map[int]int{}     // source column -> the first canonical column naming it
+	for c := range nCanon { // in order, so that the message is stable
+		if _, mapped := p.cfg.mapping[c]; !mapped || p.src[c] < 0 {
+			continue
+		}
+		srcs := []int{p.src[c]}
+		if c == cTime && p.timeJoin >= 0 {
+			srcs = append(srcs, p.timeJoin)
+		}
+		for _, i := range srcs {
+			first, dup := by[i]
+			if !dup {
+				by[i] = c
+				continue
+			}
+			what := "column"
+			if p.format != string(FormatCSV) {
+				what = "schema field"
+			}
+			e := fileErr(p.file, nil, "mappings %s=%s and %s=%s both name the %s %q: one %s can be read as one canonical column only (a typo?); map each canonical column to its own %s",
+				canonNames[first], p.cfg.mapping[first], canonNames[c], p.cfg.mapping[c], what, p.header[i], what, what)
+			if headerLine > 0 {
+				e.Line = headerLine
+			}
+			return e
+		}
+	}
+	return nil
 }

@@ -19,20 +19,34 @@ import (
 var awkward = []float64{0, math.Copysign(0, -1), 1.0 / 3, -2.0 / 3, 0.1, 1e-300, 5e-324,
 	math.MaxFloat64, 123456789.123456789, -4.35e4, 1e22, 1e23, 9007199254740993, 0.30000000000000004}
 
+// plausible holds the awkward values a position or a field may take
+// (the readers refuse a position beyond 1e8 m and a field beyond 1e17 nT:
+// checkPlausible); the temperature column carries every awkward value.
+var plausible = func() []float64 {
+	var v []float64
+	for _, x := range awkward {
+		if math.Abs(x) <= 1e7 {
+			v = append(v, x)
+		}
+	}
+	return v
+}()
+
 func testSamples() *Samples {
 	n := len(awkward)
+	np := len(plausible)
 	s := &Samples{Source: "fixture", Meta: map[string]string{"site": "Harrow Fen substation", "note": "a, b: c"}}
 	origin := Geodetic{52.61, 0.123456789, 4.5}
 	s.Origin = &origin
 	for i := 0; i < n; i++ {
 		s.Time = append(s.Time, 1.7e9+float64(i)*0.1+1.0/3)
-		s.X = append(s.X, awkward[i])
-		s.Y = append(s.Y, awkward[(i+3)%n])
-		s.Z = append(s.Z, -awkward[(i+5)%n])
-		s.Bx = append(s.Bx, awkward[(i+1)%n])
-		s.By = append(s.By, awkward[(i+2)%n])
-		s.Bz = append(s.Bz, -awkward[(i+7)%n])
-		s.Temp = append(s.Temp, 12.5+float64(i)/7)
+		s.X = append(s.X, plausible[i%np])
+		s.Y = append(s.Y, plausible[(i+3)%np])
+		s.Z = append(s.Z, -plausible[(i+5)%np])
+		s.Bx = append(s.Bx, plausible[(i+1)%np])
+		s.By = append(s.By, plausible[(i+2)%np])
+		s.Bz = append(s.Bz, -plausible[(i+7)%np])
+		s.Temp = append(s.Temp, awkward[(i+4)%n])
 		s.Group = append(s.Group, []string{"A", "B, \"north\"", "", " pad"}[i%4])
 	}
 	return s

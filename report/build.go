@@ -384,6 +384,9 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 			}
 			stations = append(stations, st)
 		}
+		if len(stations) == 0 && len(fits) > 0 {
+			return nil, noStationsError(fits)
+		}
 		r, err := route.Build(stations, rs)
 		if err != nil {
 			return nil, fmt.Errorf("report: %w", err)
@@ -1655,6 +1658,34 @@ func dipolePhaseSigma(m, ms [3]float64) float64 {
 // the first traverse along the route and set chainage 0 there, moving
 // every chainage by the sensor's distance from the first traverse (5.1 m in
 // review). Its group keeps its problem and has no chainage.
+// noStationsError says why no group gave a place along the route: each
+// (up to three) failed with all its readings at one place, as a one-row
+// log does. Before, locate said only "no stations".
+func noStationsError(fits []Fit) error {
+	var why []string
+	for i := range fits {
+		if len(why) == 3 {
+			why = append(why, fmt.Sprintf("and %d more", len(fits)-3))
+			break
+		}
+		f := &fits[i]
+		n := 0
+		if f.Problem != nil {
+			n = len(f.Problem.Points)
+		}
+		name := "the log"
+		if f.Key != "" {
+			name = "group " + f.Key
+		}
+		w := fmt.Sprintf("%s has %d %s at one place", name, n, map[bool]string{true: "reading", false: "readings"}[n == 1])
+		if f.Err != nil {
+			w += " (" + f.Err.Error() + ")"
+		}
+		why = append(why, w)
+	}
+	return fmt.Errorf("report: no group gives a place along a route: %s; a line fit needs readings along a traverse across the conductor", strings.Join(why, "; "))
+}
+
 func fixedFailed(f *Fit) bool {
 	if f.Result != nil || f.Problem == nil || len(f.Problem.Points) == 0 {
 		return false

@@ -2083,6 +2083,34 @@ func baseNoVerticalError(path, reported, elements string, vec []string) error {
 	return fmt.Errorf("base record %s reports no vertical component (%s: %s, no Z): the base correction takes the observatory's variation off all three axes of the survey's field and has nothing to take off bz; correcting bx and by alone would leave the vertical's variation in bz, which the fits read as the currents' field, so it is not done. Give the observatory's record for the same time that reports Z (its variation or adjusted data in XYZ, HDZ or HEZ), or locate without --base (no time variation is taken off)", path, hdr, held)
 }
 
+// baseIAGAMissing refuses an IAGA-2002 base record with fewer than two
+// rows whose vector elements all hold a value (the rest 99999 or 88888,
+// the format's missing values), naming the file's own columns. Before,
+// the base correction said "fewer than two valid values in column bx", a
+// column the file does not have.
+func baseIAGAMissing(path string, base *ingest.Samples) error {
+	n := 0
+	for i := range base.Bx {
+		if finite(base.Bx[i]) && finite(base.By[i]) && finite(base.Bz[i]) {
+			n++
+		}
+	}
+	if n >= 2 {
+		return nil
+	}
+	vec := strings.Fields(ingest.IAGAVectorElements(base.Meta["elements"]))
+	cols := make([]string, len(vec))
+	for i, e := range vec {
+		cols[i] = base.Meta["iaga_code"] + e
+	}
+	const need = "a base correction needs the field at two times at least, through the survey: give the observatory's record for the survey's days, or locate without --base"
+	if n == len(base.Bx) {
+		return fmt.Errorf("base record %s has %d data rows: %s", path, n, need)
+	}
+	return fmt.Errorf("base record %s: %d of its %d rows hold a value in every one of its columns %s (elements %s): the others hold 99999 or 88888, IAGA-2002's missing values; %s",
+		path, n, len(base.Bx), strings.Join(cols, ", "), strings.Join(vec, ", "), need)
+}
+
 // nonEmpty returns s as a one-element list, or nil when it is empty.
 func nonEmpty(s string) []string {
 	if s == "" {
@@ -2118,6 +2146,9 @@ func checkBaseLog(o *locateOptions, base *ingest.Samples) error {
 			// before as "fewer than two valid values in column bz", a
 			// column the file does not have (found in review).
 			return baseNoVerticalError(o.base, base.Meta["reported"], el, vec)
+		}
+		if err := baseIAGAMissing(o.base, base); err != nil {
+			return err
 		}
 	}
 	for _, c := range []struct {

@@ -352,6 +352,9 @@ func replayLog(ctx context.Context, o *replayOptions, fs *pflag.FlagSet, path st
 	if err := o.read.checkIAGA("LOG", path); err != nil {
 		return nil, 0, 0, nil, err
 	}
+	// A reading no survey gives (1e200 nT) is sent on, with a warning,
+	// for serve to refuse (dead-letter) as it would from a gateway.
+	opts = append(opts, ingest.WithImplausibleValues(true))
 	if fs == nil || !fs.Changed("time-order") {
 		opts = append(opts, ingest.WithTimeOrder(ingest.TimeOrderedPerGroup))
 	} else if order, _ := ingest.ParseTimeOrder(o.read.timeOrder); order == ingest.TimeAnyOrder {

@@ -6,6 +6,9 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"strings"
+
+	"undercurrent/ingest"
 )
 
 // Batch is one decoded sensor message: consecutive samples of one
@@ -141,6 +144,9 @@ func decodeJSON(subject string, data []byte) (*Batch, error) {
 		line, col := lineCol(data, int64(len(data)-len(rest)))
 		return nil, fmt.Errorf("broker: %s: line %d column %d: content after the batch object (one batch per message)", subject, line, col)
 	}
+	if err := checkKeys(subject, data); err != nil {
+		return nil, err
+	}
 	// encoding/json leaves a null array element at 0: a reading a gateway
 	// marked missing would become 0 nT. Look for nulls only when the
 	// payload has the word, with a slower decode that keeps them.
@@ -171,6 +177,43 @@ func decodeJSON(subject string, data []byte) (*Batch, error) {
 		return nil, fmt.Errorf("broker: %s: missing \"time\" (or \"t0\" and \"rate\")", subject)
 	}
 	return b, nil
+}
+
+// jsonKeys are the keys of a JSON batch, as written (jsonBatch's tags).
+var jsonKeys = map[string]bool{"asset": true, "sensor": true, "time": true, "t0": true, "rate": true, "bx": true, "by": true, "bz": true, "temp": true}
+
+// checkKeys refuses a batch object that gives a key twice or a key in
+// another case than its own ("BX"), naming the line and column: before,
+// encoding/json kept the last of two "bx" in silence and took "BX" as bx.
+// The values are skipped whole, not walked.
+func checkKeys(subject string, data []byte) error {
+	dec := json.NewDecoder(bytes.NewReader(data))
+	if t, err := dec.Token(); err != nil || t != json.Delim('{') {
+		return nil // the decode before has refused anything else
+	}
+	seen := map[string]bool{}
+	for dec.More() {
+		at := dec.InputOffset()
+		t, err := dec.Token()
+		if err != nil {
+			return nil
+		}
+		k, _ := t.(string)
+		rest := bytes.TrimLeft(data[at:], " \t\r\n,")
+		line, col := lineCol(data, int64(len(data)-len(rest)))
+		switch {
+		case seen[k]:
+			return fmt.Errorf("broker: %s: line %d column %d: key %q given twice (one value per key)", subject, line, col, k)
+		case !jsonKeys[k]:
+			return fmt.Errorf("broker: %s: line %d column %d: key %q: keys are lower case (%s)", subject, line, col, k, strings.ToLower(k))
+		}
+		seen[k] = true
+		var v json.RawMessage
+		if err := dec.Decode(&v); err != nil {
+			return nil
+		}
+	}
+	return nil
 }
 
 // findNull refuses a payload with a null in a number column, naming the
@@ -259,8 +302,9 @@ func (b *Batch) Validate(where string) error {
 // and two thousand times the Earth's field (the bound locate's unit check
 // uses). No buried conductor gives it (500 kA at 1 m, by Biot-Savart);
 // a reading above it is a corrupt value or a wrong scale, and one such
-// reading (1e200 nT) makes a window's fit overflow.
-const MaxFieldNT = 1e8
+// reading (1e200 nT) makes a window's fit overflow. The file readers
+// refuse a reading above it too (ingest.MaxFieldNT, the same bound).
+const MaxFieldNT = ingest.MaxFieldNT
 
 // fieldMagnitude is |B| of one reading, without overflow for finite
 // components.

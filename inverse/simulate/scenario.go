@@ -241,6 +241,12 @@ const (
 	MaxRows = 10_000_000
 	// maxLines bounds the number of traverses or grid lines.
 	maxLines = 10_000
+	// minSpeed and maxSpeed bound survey.speed_m_s, m/s.
+	minSpeed, maxSpeed = 1e-6, 100.0
+	// maxWalk bounds a walked survey's duration, s (about three years).
+	maxWalk = 1e8
+	// maxTurn bounds survey.turn_s, s.
+	maxTurn = 86400.0
 )
 
 // decodeErrRE matches the decoder's type errors.
@@ -354,6 +360,15 @@ func (sc *Scenario) Validate() error {
 			return sc.errAt("survey", 0, "", "the survey would log more than %d readings: lower the sample rate, the line length, the number of lines or the spin duration", MaxRows)
 		}
 	}
+	if walked {
+		dur := sc.Survey.Turn * float64(len(lines))
+		for _, l := range lines {
+			dur += l.Length() / sc.speed()
+		}
+		if !(dur <= maxWalk) {
+			return sc.errAt("survey", 0, "speed_m_s", "the survey would take %.3g s, more than %g s (about three years): raise the speed or shorten the lines", dur, maxWalk)
+		}
+	}
 	return nil
 }
 
@@ -397,11 +412,13 @@ func (sc *Scenario) validateSensor() error {
 	case hasSpacing && !(sc.Survey.SampleSpacing > 0) || !finite(sc.Survey.SampleSpacing):
 		return sc.errAt("survey", 0, "sample_spacing_m", "sample spacing %g m must be > 0", sc.Survey.SampleSpacing)
 	}
-	if sp := sc.Survey.Speed; !finite(sp) || sp < 0 {
-		return sc.errAt("survey", 0, "speed_m_s", "speed %g m/s must be > 0", sp)
+	// A speed or a turn time far out of range gives times past any clock
+	// (turn_s = 1e300 wrote a log of times near 1e300 s).
+	if sp := sc.Survey.Speed; !finite(sp) || sp < 0 || sp > 0 && (sp < minSpeed || sp > maxSpeed) {
+		return sc.errAt("survey", 0, "speed_m_s", "speed %g m/s must be in [%g, %g]", sp, minSpeed, maxSpeed)
 	}
-	if t := sc.Survey.Turn; !finite(t) || t < 0 {
-		return sc.errAt("survey", 0, "turn_s", "turn time %g s must be >= 0", t)
+	if t := sc.Survey.Turn; !finite(t) || t < 0 || t > maxTurn {
+		return sc.errAt("survey", 0, "turn_s", "turn time %g s must be in [0, %g] (a day)", t, maxTurn)
 	}
 	return nil
 }

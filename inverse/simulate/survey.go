@@ -24,8 +24,15 @@ type Line struct {
 func (l Line) Length() float64 { return math.Hypot(l.To[0]-l.From[0], l.To[1]-l.From[1]) }
 
 // samples is the number of readings on the line at spacing ds.
+// The count is worked out in float64 and saturates at MaxRows+1, so that
+// a line too long for the guard in Validate cannot overflow the int
+// conversion into a negative count that passes the guard.
 func (l Line) samples(ds float64) int {
-	return int(math.Floor(l.Length()/ds+1e-9)) + 1
+	n := math.Floor(l.Length()/ds+1e-9) + 1
+	if !(n <= MaxRows) {
+		return MaxRows + 1
+	}
+	return int(n)
 }
 
 // lineSamples is the number of readings on survey line l.
@@ -91,6 +98,9 @@ func (sc *Scenario) traverses() ([]Line, error) {
 	}
 	if !finite(sv.Spacing, sv.FirstAt, sv.Length) || sv.Length <= 0 {
 		return nil, sc.errAt("survey", 0, "length_m", "traverse length %g m must be > 0", sv.Length)
+	}
+	if ds := sc.speed() / sc.rate(); !(sv.Length/ds <= MaxRows) {
+		return nil, sc.errAt("survey", 0, "length_m", "a traverse of %g m, at %g m between readings, would log more than %d readings: shorten it (a survey traverse is some metres to a few kilometres)", sv.Length, ds, MaxRows)
 	}
 	if sv.Count > 1 && !(sv.Spacing > 0) {
 		return nil, sc.errAt("survey", 0, "spacing_m", "spacing %g m between traverses must be > 0", sv.Spacing)
@@ -193,9 +203,14 @@ func (sc *Scenario) grid() ([]Line, error) {
 	if !(sv.LineSpacing > 0) {
 		return nil, sc.errAt("survey", 0, "line_spacing_m", "line spacing %g m must be > 0", sv.LineSpacing)
 	}
-	n := int(math.Floor(sv.Size[1]/sv.LineSpacing+1e-9)) + 1
-	if n > maxLines {
-		return nil, sc.errAt("survey", 0, "line_spacing_m", "the grid would have %d lines, more than %d", n, maxLines)
+	// Counted in float64: a huge size overflowed the int conversion.
+	nf := math.Floor(sv.Size[1]/sv.LineSpacing+1e-9) + 1
+	if !(nf <= maxLines) {
+		return nil, sc.errAt("survey", 0, "line_spacing_m", "the grid would have %.6g lines, more than %d", nf, maxLines)
+	}
+	n := int(nf)
+	if ds := sc.speed() / sc.rate(); !(sv.Size[0]/ds <= MaxRows) {
+		return nil, sc.errAt("survey", 0, "size_m", "a grid line of %g m, at %g m between readings, would log more than %d readings: make the grid smaller", sv.Size[0], ds, MaxRows)
 	}
 	az := sv.Azimuth * math.Pi / 180
 	u := [2]float64{math.Sin(az), math.Cos(az)}  // along the lines

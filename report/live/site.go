@@ -552,10 +552,11 @@ func (s *Site) validate() error {
 			return keyErrorf("service."+d.key, "service.%s %v: want a positive duration", d.key, d.v)
 		}
 	}
-	if s.Service.MaxMessageBytes < 0 {
+	if s.Service.MaxMessageBytes < 0 || s.Service.MaxMessageBytes > maxMessageBytes {
 		// Before, a negative limit was kept and every sensor batch went to
-		// uc.dlq.oversized ("1450 bytes, limit -5").
-		return keyErrorf("service.max_message_bytes", "service.max_message_bytes %d: want a positive size in bytes (0 or absent means 1 MiB)", s.Service.MaxMessageBytes)
+		// uc.dlq.oversized ("1450 bytes, limit -5"); a huge one defeated
+		// the memory bound the key is for.
+		return keyErrorf("service.max_message_bytes", "service.max_message_bytes %d: want a positive size in bytes up to %d (64 MiB; 0 or absent means 1 MiB)", s.Service.MaxMessageBytes, maxMessageBytes)
 	}
 	if s.Service.MaxMessageBytes == 0 {
 		s.Service.MaxMessageBytes = 1 << 20
@@ -626,11 +627,21 @@ func (s *Site) validate() error {
 		}
 		if err := a.validate(filepath.Dir(s.Path)); err != nil {
 			var ke *keyError
-			if errors.As(err, &ke) && ke.header == "[[asset.conductor]]" {
-				// a.validate numbers the asset's own conductors; the
-				// file's line is found by its place among all of them.
-				for _, b := range s.Assets[:i] {
-					ke.index += len(b.Conductors)
+			if errors.As(err, &ke) {
+				// a.validate numbers the asset's own conductors and
+				// sensors; the file's line is found by their place among
+				// all of them.
+				switch ke.header {
+				case "[[asset.conductor]]":
+					for _, b := range s.Assets[:i] {
+						ke.index += len(b.Conductors)
+					}
+				case "[[asset.sensor]]":
+					for _, b := range s.Assets[:i] {
+						ke.index += len(b.Sensors)
+					}
+				case "[[asset]]":
+					ke.index = i
 				}
 			}
 			return fmt.Errorf("asset %q: %w", a.Name, err)
@@ -653,8 +664,9 @@ func (a *AssetConfig) validate(dir string) error {
 	if a.Window.Duration == 0 {
 		a.Window.Duration = time.Second
 	}
-	if a.Window.Duration < time.Millisecond {
-		return fmt.Errorf("window %v: want at least 1ms", a.Window.Duration)
+	if a.Window.Duration < time.Millisecond || a.Window.Duration > maxWindow {
+		return &keyError{header: "[[asset]]", key: "window",
+			err: fmt.Errorf("window %v: want 1ms to %v", a.Window.Duration, maxWindow)}
 	}
 	if a.Mode == "ac" && a.Window.Seconds()*a.Frequency < 2 {
 		return fmt.Errorf("window %v holds fewer than two cycles at %v Hz", a.Window.Duration, a.Frequency)
@@ -700,6 +712,9 @@ func (a *AssetConfig) validate(dir string) error {
 			return fmt.Errorf("sensor %q listed twice", s.Name)
 		}
 		names[s.Name] = true
+		if err := s.checkPlace(i); err != nil {
+			return err
+		}
 		if !(s.Range >= 0) || math.IsInf(s.Range, 0) {
 			return fmt.Errorf("sensor %q: range_nt %v: want the sensor's range in nT, above 0 (or 0: not stated)", s.Name, s.Range)
 		}
@@ -717,6 +732,9 @@ func (a *AssetConfig) validate(dir string) error {
 			return fmt.Errorf("conductor %q listed twice", c.Name)
 		}
 		cnames[c.Name] = true
+		if err := c.checkPlace(i); err != nil {
+			return err
+		}
 		for _, l := range []struct {
 			key string
 			v   *float64
@@ -777,6 +795,11 @@ func (a *AssetConfig) validate(dir string) error {
 			return fmt.Errorf("conductor %q: kind %q: want \"line\" or \"segment\"", c.Name, c.Kind)
 		}
 	}
+	if a.Model == "fixed" {
+		if err := a.checkClearance(); err != nil {
+			return err
+		}
+	}
 	for i := range a.Conductors {
 		// share_of is checked once every conductor's name is known.
 		c := &a.Conductors[i]
@@ -799,6 +822,108 @@ func (a *AssetConfig) validate(dir string) error {
 		}
 	}
 	return nil
+}
+
+// Bounds on a site file's values, so that a slip (nan, 1e15, "1000000h")
+// is refused with the file rather than found as a service that runs and
+// never estimates: a NaN sensor orientation or conductor point made every
+// window fail ("phasor east is (NaN+NaNi)") with nothing naming the file.
+const (
+	// maxSiteCoord bounds a position's coordinates in the site's local
+	// frame, m.
+	maxSiteCoord = 1e6
+	// maxAngle bounds an orientation angle, degrees.
+	maxAngle = 360
+	// minClearance is the least distance from a sensor to a conductor's
+	// axis, m: the field of a line is unbounded on it.
+	minClearance = 0.01
+	// maxWindow bounds an asset's window.
+	maxWindow = 24 * time.Hour
+	// maxMessageBytes bounds service.max_message_bytes (a decoded
+	// message may take 16 times as much memory: maxDecoded).
+	maxMessageBytes = 64 << 20
+)
+
+// checkPlace refuses a sensor position or orientation that is not finite
+// or is out of bounds; i is the sensor's place in its asset.
+func (s *SensorConfig) checkPlace(i int) error {
+	for _, k := range []struct {
+		key   string
+		v     [3]float64
+		bound float64
+		want  string
+	}{
+		{"position", s.Position, maxSiteCoord, "east, north, up in metres, each within +-1e6"},
+		{"orientation", s.Orientation, maxAngle, "yaw, pitch, roll in degrees, each within +-360"},
+	} {
+		for _, x := range k.v {
+			if !(math.Abs(x) <= k.bound) {
+				return &keyError{header: "[[asset.sensor]]", index: i, key: k.key,
+					err: fmt.Errorf("sensor %q: %s %v: want %s", s.Name, k.key, k.v, k.want)}
+			}
+		}
+	}
+	return nil
+}
+
+// checkPlace refuses a conductor's point, direction, from or to that is
+// not finite or is out of bounds; i is its place in its asset.
+func (c *ConductorConfig) checkPlace(i int) error {
+	for _, k := range []struct {
+		key string
+		v   [3]float64
+	}{{"point", c.Point}, {"direction", c.Direction}, {"from", c.From}, {"to", c.To}} {
+		for _, x := range k.v {
+			if !(math.Abs(x) <= maxSiteCoord) {
+				return &keyError{header: "[[asset.conductor]]", index: i, key: k.key,
+					err: fmt.Errorf("conductor %q: %s %v: want east, north, up in metres, each finite and within +-1e6", c.Name, k.key, k.v)}
+			}
+		}
+	}
+	return nil
+}
+
+// checkClearance refuses a sensor on a conductor (model "fixed"): its
+// field there is unbounded, and a sensor placed at a conductor's point is
+// a slip in the file.
+func (a *AssetConfig) checkClearance() error {
+	for i := range a.Sensors {
+		s := &a.Sensors[i]
+		for _, c := range a.Conductors {
+			var d float64
+			switch c.Kind {
+			case "line":
+				d = distToLine(s.Position, c.Point, c.Direction, false)
+			case "segment":
+				d = distToLine(s.Position, c.From, sub3(c.To, c.From), true)
+			default:
+				continue
+			}
+			if d < minClearance {
+				return &keyError{header: "[[asset.sensor]]", index: i, key: "position",
+					err: fmt.Errorf("sensor %q: position %v is %.3g m from conductor %q: want at least %g m (a sensor on a conductor sees no field it can be fitted to)", s.Name, s.Position, d, c.Name, minClearance)}
+			}
+		}
+	}
+	return nil
+}
+
+func sub3(a, b [3]float64) [3]float64 { return [3]float64{a[0] - b[0], a[1] - b[1], a[2] - b[2]} }
+
+// distToLine is the distance from p to the line through o along d, or,
+// when seg, to the segment from o to o+d.
+func distToLine(p, o, d [3]float64, seg bool) float64 {
+	v := sub3(p, o)
+	dd := d[0]*d[0] + d[1]*d[1] + d[2]*d[2]
+	if dd == 0 {
+		return math.Sqrt(v[0]*v[0] + v[1]*v[1] + v[2]*v[2])
+	}
+	t := (v[0]*d[0] + v[1]*d[1] + v[2]*d[2]) / dd
+	if seg {
+		t = max(0, min(1, t))
+	}
+	r := [3]float64{v[0] - t*d[0], v[1] - t*d[1], v[2] - t*d[2]}
+	return math.Sqrt(r[0]*r[0] + r[1]*r[1] + r[2]*r[2])
 }
 
 // dlqDefault is the dead-letter bound aimed at when dlq_max_bytes is 0
