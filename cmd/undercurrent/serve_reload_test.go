@@ -43,6 +43,11 @@ func TestServeSIGHUPNoReload(t *testing.T) {
 			t.Errorf("start line %q lacks %q", serving, want)
 		}
 	}
+	// The signals go once the streams are set up (the dead-letter line
+	// comes after them, "max_age=" in either of its forms): a SIGTERM
+	// while serve still sets them up ends it with nothing to drain, and
+	// exits as interrupted, which is not what this test looks at.
+	pollUntil(t, 30*time.Second, "the streams set up", func() bool { return strings.Contains(logText(), "max_age=") || exited() })
 	if err := w.cmd.Process.Signal(syscall.SIGHUP); err != nil {
 		t.Fatal(err)
 	}
