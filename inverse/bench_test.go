@@ -9,9 +9,9 @@ import (
 	"path/filepath"
 	"strconv"
 	"strings"
-	"syscall"
 	"testing"
-	"time"
+
+	"undercurrent/ingest/ingesttest"
 )
 
 // Benchmarks for the README performance table (issue 2): one line on one 41-point
@@ -56,32 +56,13 @@ func (c benchCase) problem() *Problem {
 
 func benchFit(b *testing.B, p *Problem, set *Settings) {
 	b.ReportAllocs()
-	cpu := cpuTime()
+	cpu := ingesttest.CPUTime()
 	for b.Loop() {
 		if _, err := FitLines(p, set); err != nil {
 			b.Fatal(err)
 		}
 	}
-	reportCPU(b, cpu)
-}
-
-// cpuTime returns the CPU time (user and system) consumed by the process so far.
-func cpuTime() time.Duration {
-	var ru syscall.Rusage
-	if err := syscall.Getrusage(syscall.RUSAGE_SELF, &ru); err != nil {
-		return 0
-	}
-	return time.Duration(ru.Utime.Nano() + ru.Stime.Nano())
-}
-
-// reportCPU adds the process CPU time per operation since start as the metric
-// "cpu-ns/op". On a loaded machine the wall-clock ns/op includes time spent waiting for
-// a core; CPU time is what a fit costs, and what bench_scipy.py reports
-// (time.process_time) for the same fits. Run with -cpu 1 for one core.
-func reportCPU(b *testing.B, start time.Duration) {
-	if start > 0 && b.N > 0 {
-		b.ReportMetric(float64(cpuTime()-start)/float64(b.N), "cpu-ns/op")
-	}
+	ingesttest.ReportCPU(b, cpu)
 }
 
 func BenchmarkFitOneLineTraverse41(b *testing.B) {

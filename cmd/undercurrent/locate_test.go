@@ -7,11 +7,10 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
-	"syscall"
 	"testing"
-	"time"
 
 	"undercurrent/ingest"
+	"undercurrent/ingest/ingesttest"
 	"undercurrent/inverse/simulate"
 	"undercurrent/report"
 )
@@ -245,13 +244,13 @@ func BenchmarkLocateRoute31(b *testing.B) {
 		b.Fatal(err)
 	}
 	b.ResetTimer()
-	cpu := cpuTime()
+	cpu := ingesttest.CPUTime()
 	for b.Loop() {
 		if _, err := runLocate(b.Context(), o, []string{log}, nil); err != nil {
 			b.Fatal(err)
 		}
 	}
-	reportCPU(b, cpu)
+	ingesttest.ReportCPU(b, cpu)
 }
 
 // BenchmarkLocateScaling shows how locate's time grows with the readings
@@ -266,13 +265,13 @@ func BenchmarkLocateScaling(b *testing.B) {
 				if err := o.check(nil); err != nil {
 					b.Fatal(err)
 				}
-				cpu := cpuTime()
+				cpu := ingesttest.CPUTime()
 				for b.Loop() {
 					if _, err := runLocate(b.Context(), o, []string{log}, nil); err != nil {
 						b.Fatal(err)
 					}
 				}
-				reportCPU(b, cpu)
+				ingesttest.ReportCPU(b, cpu)
 			})
 		}
 	}
@@ -288,7 +287,7 @@ func BenchmarkLocateRoute31Files(b *testing.B) {
 	}
 	out := filepath.Join(b.TempDir(), "results")
 	b.ResetTimer()
-	cpu := cpuTime()
+	cpu := ingesttest.CPUTime()
 	for b.Loop() {
 		doc, err := runLocate(b.Context(), o, []string{log}, nil)
 		if err != nil {
@@ -298,25 +297,7 @@ func BenchmarkLocateRoute31Files(b *testing.B) {
 			b.Fatal(err)
 		}
 	}
-	reportCPU(b, cpu)
-}
-
-// cpuTime returns the CPU time (user and system) the process has used.
-func cpuTime() time.Duration {
-	var ru syscall.Rusage
-	if err := syscall.Getrusage(syscall.RUSAGE_SELF, &ru); err != nil {
-		return 0
-	}
-	return time.Duration(ru.Utime.Nano() + ru.Stime.Nano())
-}
-
-// reportCPU adds the process CPU time per operation since start as "cpu-ns/op". On a
-// loaded machine ns/op (wall clock) includes time spent waiting for a core; CPU time is
-// what a locate costs. Run with -cpu 1 so that it is also one core's time.
-func reportCPU(b *testing.B, start time.Duration) {
-	if start > 0 && b.N > 0 {
-		b.ReportMetric(float64(cpuTime()-start)/float64(b.N), "cpu-ns/op")
-	}
+	ingesttest.ReportCPU(b, cpu)
 }
 
 // routeLog writes a DC version of the demo survey sampled rate times a
