@@ -27,6 +27,31 @@ func harrowFenText(t *testing.T, old, new string) (string, int) {
 	return text[:i] + new + text[i+len(old):], strings.Count(text[:i], "\n") + 1
 }
 
+// refusedAtValue parses the bundled site file with old replaced by new,
+// checks that it is refused at the new value's line and column (just
+// after "= ") and that the message says each of want, and returns the
+// message.
+func refusedAtValue(t *testing.T, old, new string, want []string) string {
+	t.Helper()
+	text, line := harrowFenText(t, old, new)
+	_, err := ParseSite("site.toml", []byte(text))
+	if err == nil {
+		t.Fatal("the bad value was accepted")
+	}
+	msg := err.Error()
+	col := strings.Index(strings.Split(text, "\n")[line-1], "=") + 3
+	at := "site.toml:" + strconv.Itoa(line) + ":" + strconv.Itoa(col) + ": "
+	if !strings.Contains(msg, at) {
+		t.Errorf("%q does not point at line %d column %d (%q)", msg, line, col, at)
+	}
+	for _, w := range want {
+		if !strings.Contains(msg, w) {
+			t.Errorf("%q does not say %q", msg, w)
+		}
+	}
+	return msg
+}
+
 // TestSiteValueErrorLine: a value the decoder refuses in the FIRST of two
 // [[asset]] tables (or in a sensor of the first) is reported at its own
 // line, with the key and the offending text in plain words. Before, the
@@ -43,22 +68,7 @@ func TestSiteValueErrorLine(t *testing.T) {
 		{"type", `frequency = 50.0`, `frequency = "fifty"`, []string{`key asset.frequency = "fifty"`, "want a number, found a string"}},
 	} {
 		t.Run(c.name, func(t *testing.T) {
-			text, line := harrowFenText(t, c.old, c.new)
-			_, err := ParseSite("site.toml", []byte(text))
-			if err == nil {
-				t.Fatal("the bad value was accepted")
-			}
-			msg := err.Error()
-			col := strings.Index(strings.Split(text, "\n")[line-1], "=") + 3
-			at := "site.toml:" + strconv.Itoa(line) + ":" + strconv.Itoa(col) + ": "
-			if !strings.Contains(msg, at) {
-				t.Errorf("%q does not point at line %d column %d (%q)", msg, line, col, at)
-			}
-			for _, w := range c.want {
-				if !strings.Contains(msg, w) {
-					t.Errorf("%q does not say %q", msg, w)
-				}
-			}
+			msg := refusedAtValue(t, c.old, c.new, c.want)
 			for _, bad := range []string{": toml: ", "toml: line", "destination has type", "TOML array"} {
 				if strings.Contains(msg, bad) {
 					t.Errorf("%q holds the library's wording %q", msg, bad)
