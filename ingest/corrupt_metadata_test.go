@@ -4,11 +4,10 @@ import (
 	"bytes"
 	"encoding/binary"
 	"errors"
-	"os"
+	"io"
 	"path/filepath"
 	"runtime"
 	"strings"
-	"syscall"
 	"testing"
 
 	"github.com/apache/arrow-go/v18/arrow"
@@ -90,18 +89,7 @@ func TestPipeStreamHugeMessageRefused(t *testing.T) {
 	head := append([]byte(nil), s[:rb+8]...)
 	binary.LittleEndian.PutUint32(head[rb+4:], 0x7ffffff0)
 
-	p := filepath.Join(t.TempDir(), "log.fifo")
-	if err := syscall.Mkfifo(p, 0o600); err != nil {
-		t.Skipf("no named pipes here: %v", err)
-	}
-	done := make(chan struct{})
-	go func() {
-		defer close(done)
-		w, err := os.OpenFile(p, os.O_WRONLY, 0)
-		if err != nil {
-			return
-		}
-		defer w.Close()
+	p := fifoFed(t, func(w io.Writer) {
 		if _, err := w.Write(head); err != nil {
 			return
 		}
@@ -111,7 +99,7 @@ func TestPipeStreamHugeMessageRefused(t *testing.T) {
 				return
 			}
 		}
-	}()
+	})
 	var n uint64
 	n = allocatedBy(func() {
 		var rd Reader
@@ -124,7 +112,6 @@ func TestPipeStreamHugeMessageRefused(t *testing.T) {
 		err = rd.Err()
 		rd.Release()
 	})
-	<-done
 	want := "Arrow IPC message longer than allowed: the message at byte N declares metadata of 2147483632 bytes, over the limit of 67108864"
 	if err == nil || !strings.Contains(err.Error(), "Arrow IPC message longer than allowed") || !strings.Contains(err.Error(), "declares metadata of 2147483632 bytes, over the limit of 67108864") {
 		t.Errorf("got %v, want %q", err, want)

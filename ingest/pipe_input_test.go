@@ -1,6 +1,7 @@
 package ingest
 
 import (
+	"io"
 	"os"
 	"path/filepath"
 	"syscall"
@@ -20,6 +21,16 @@ func fifoOf(t *testing.T, file string) string {
 	if err != nil {
 		t.Fatal(err)
 	}
+	return fifoFed(t, func(w io.Writer) {
+		w.Write(data) // a reader that stops early leaves EPIPE: fine
+	})
+}
+
+// fifoFed makes a named pipe and, from another goroutine, opens it for
+// writing, hands it to feed and closes it; the test's cleanup waits for
+// the writer. It skips the test where named pipes cannot be made.
+func fifoFed(t *testing.T, feed func(w io.Writer)) string {
+	t.Helper()
 	p := filepath.Join(t.TempDir(), "log.fifo")
 	if err := syscall.Mkfifo(p, 0o600); err != nil {
 		t.Skipf("no named pipes here: %v", err)
@@ -31,8 +42,8 @@ func fifoOf(t *testing.T, file string) string {
 		if err != nil {
 			return
 		}
-		w.Write(data) // a reader that stops early leaves EPIPE: fine
-		w.Close()
+		defer w.Close()
+		feed(w)
 	}()
 	t.Cleanup(func() { <-done })
 	return p

@@ -4,8 +4,6 @@ import (
 	"io"
 	"log/slog"
 	"net/http"
-	"net/url"
-	"strconv"
 	"strings"
 	"testing"
 	"time"
@@ -28,14 +26,8 @@ func TestBrokerOutageSaidOnce(t *testing.T) {
 	if testing.Short() {
 		t.Skip("stops a broker under the service")
 	}
-	dir := t.TempDir()
-	srv, err := broker.StartServer(broker.ServerConfig{StoreDir: dir, MQTTPort: -1})
-	if err != nil {
-		t.Fatal(err)
-	}
-	u, _ := url.Parse(srv.ClientURL())
-	port, _ := strconv.Atoi(u.Port())
-	h := &harness{t: t, srv: srv}
+	dir, port, h := restartableBroker(t)
+	srv := h.srv
 	nc, err := broker.Connect(srv.ClientURL(), "test-publisher", broker.Auth{})
 	if err != nil {
 		t.Fatal(err)

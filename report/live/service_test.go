@@ -535,6 +535,22 @@ func TestDrainHandsOver(t *testing.T) {
 	b.stop(t)
 }
 
+// restartableBroker starts an embedded broker on a store directory of
+// the test's own, for tests that stop it and start it again on the same
+// directory and client port; it returns the directory, the port and a
+// harness holding the server.
+func restartableBroker(t *testing.T) (dir string, port int, h *harness) {
+	t.Helper()
+	dir = t.TempDir()
+	srv, err := broker.StartServer(broker.ServerConfig{StoreDir: dir, MQTTPort: -1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	u, _ := url.Parse(srv.ClientURL())
+	port, _ = strconv.Atoi(u.Port())
+	return dir, port, &harness{t: t, srv: srv}
+}
+
 // Reliability (issue 6): stop and restart the broker under a running
 // service; nothing acknowledged is lost and every window still has
 // exactly one estimate.
@@ -542,14 +558,8 @@ func TestBrokerRestartUnderService(t *testing.T) {
 	if testing.Short() {
 		t.Skip("restarts a broker under the service")
 	}
-	dir := t.TempDir()
-	srv, err := broker.StartServer(broker.ServerConfig{StoreDir: dir, MQTTPort: -1})
-	if err != nil {
-		t.Fatal(err)
-	}
-	u, _ := url.Parse(srv.ClientURL())
-	port, _ := strconv.Atoi(u.Port())
-	h := &harness{t: t, srv: srv}
+	dir, port, h := restartableBroker(t)
+	srv := h.srv
 	connect := func() {
 		nc, err := broker.Connect(srv.ClientURL(), "test-publisher", broker.Auth{})
 		if err != nil {
@@ -564,7 +574,7 @@ func TestBrokerRestartUnderService(t *testing.T) {
 	h.publish(0, 2)
 	waitFor(t, 30*time.Second, "4 estimates", func() bool { return len(h.estimates()) >= 4 })
 	srv.Shutdown()
-	srv, err = broker.StartServer(broker.ServerConfig{StoreDir: dir, Port: port, MQTTPort: -1})
+	srv, err := broker.StartServer(broker.ServerConfig{StoreDir: dir, Port: port, MQTTPort: -1})
 	if err != nil {
 		t.Fatal(err)
 	}
