@@ -1,8 +1,6 @@
 package ingest
 
 import (
-	"os"
-	"path/filepath"
 	"strings"
 	"testing"
 )
@@ -15,14 +13,7 @@ import (
 // the NUL bytes are named at their line and byte, and both cut lines are
 // left out alike. Invented values.
 func TestCSVDamageWords(t *testing.T) {
-	dir := t.TempDir()
-	write := func(name, text string) string {
-		p := filepath.Join(dir, name)
-		if err := os.WriteFile(p, []byte(text), 0o644); err != nil {
-			t.Fatal(err)
-		}
-		return p
-	}
+	write := func(name, text string) string { return writeFile(t, name, text) }
 	head := "time,x,y,z,bx,by,bz,group\n0,0,0,0.3,1,18000,-44000,\"T01\"\n1,0.1,0,0.3,1,18000,-44000,\"T01\"\n"
 	_, err := ReadSamples(write("nul.csv", head+"2,0.2,0,0.3,1,18\x00\x00\x00\x00\n3,0.3,0,0.3,1,18000,-44000,\"T01\"\n"), WithAllocator(checked(t)))
 	if err == nil || !strings.Contains(err.Error(), `nul.csv:4: column by: "18\x00\x00\x00\x00" holds NUL bytes (from byte 17 of the line): binary bytes amid the text`) || strings.Contains(err.Error(), "short row") {

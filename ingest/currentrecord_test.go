@@ -1,8 +1,6 @@
 package ingest
 
 import (
-	"os"
-	"path/filepath"
 	"strings"
 	"testing"
 )
@@ -13,14 +11,7 @@ import (
 // refused for want of bx, and with it a log without a current column is refused naming
 // the column. Invented fixture.
 func TestCurrentRecord(t *testing.T) {
-	dir := t.TempDir()
-	write := func(name, text string) string {
-		p := filepath.Join(dir, name)
-		if err := os.WriteFile(p, []byte(text), 0o644); err != nil {
-			t.Fatal(err)
-		}
-		return p
-	}
+	write := func(name, text string) string { return writeFile(t, name, text) }
 	amps := write("amps.csv", "time,current_A\n0,100\n1,110\n2,\n3,90\n")
 	s, err := ReadSamples(amps, WithCurrentRecord(true), WithAllowMissing(true))
 	if err != nil {
