@@ -1,7 +1,13 @@
 package broker
 
 import (
+	"bytes"
 	"context"
+	"crypto/tls"
+	"crypto/x509"
+	"fmt"
+	"io"
+	"net"
 	"os"
 	"path/filepath"
 	"strings"
@@ -116,6 +122,52 @@ func TestServerMutualTLS(t *testing.T) {
 		t.Fatalf("in-process: %v", err)
 	}
 	inp.Close()
+
+	// The MQTT listener speaks the same TLS: an MQTT 3.1.1 CONNECT gets
+	// its CONNACK (20 02 00 00, accepted) only over TLS with a client
+	// certificate from the CA.
+	mqttConnect := []byte{0x10, 13, 0, 4, 'M', 'Q', 'T', 'T', 4, 2, 0, 60, 0, 1, 't'}
+	connack := func(c net.Conn) error {
+		c.SetDeadline(time.Now().Add(5 * time.Second))
+		if _, err := c.Write(mqttConnect); err != nil {
+			return err
+		}
+		got := make([]byte, 4)
+		if _, err := io.ReadFull(c, got); err != nil {
+			return err
+		}
+		if !bytes.Equal(got, []byte{0x20, 2, 0, 0}) {
+			return fmt.Errorf("CONNACK % x", got)
+		}
+		return nil
+	}
+	roots := x509.NewCertPool()
+	caPEM, _ := os.ReadFile(pki.CA)
+	roots.AppendCertsFromPEM(caPEM)
+	cert, err := tls.LoadX509KeyPair(pki.ClientCert, pki.ClientKey)
+	if err != nil {
+		t.Fatal(err)
+	}
+	addr := s.MQTTAddr()
+	for _, c := range []struct {
+		name string
+		conf *tls.Config
+	}{{"plaintext", nil}, {"TLS without a client certificate", &tls.Config{RootCAs: roots, ServerName: "127.0.0.1"}},
+		{"TLS with a client certificate", &tls.Config{RootCAs: roots, ServerName: "127.0.0.1", Certificates: []tls.Certificate{cert}}}} {
+		var conn net.Conn
+		if c.conf == nil {
+			conn, err = net.DialTimeout("tcp", addr, 5*time.Second)
+		} else {
+			conn, err = tls.DialWithDialer(&net.Dialer{Timeout: 5 * time.Second}, "tcp", addr, c.conf)
+		}
+		if err == nil {
+			err = connack(conn)
+			conn.Close()
+		}
+		if ok := c.conf != nil && c.conf.Certificates != nil; ok != (err == nil) {
+			t.Errorf("MQTT %s: %v; want accepted %v", c.name, err, ok)
+		}
+	}
 }
 
 // A listener certificate without its key, a missing file, a file with no
