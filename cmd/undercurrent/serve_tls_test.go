@@ -100,7 +100,10 @@ listen_tls_client_ca = "ca.pem"
 			t.Fatalf("second worker exited %d:\n%s", c, stderr2.String())
 		default:
 		}
-		return strings.Contains(stderr2.String(), "serving")
+		// Set up once its streams are (the dead-letter line, "max_age=",
+		// comes after them): cancelled before, serve exits as
+		// interrupted (130), as TestServeSIGHUPNoReload found.
+		return strings.Contains(stderr2.String(), "serving") && strings.Contains(stderr2.String(), "max_age=")
 	})
 	cancel()
 	for i, d := range []chan int{done2, done} {
