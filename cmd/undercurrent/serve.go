@@ -193,6 +193,7 @@ func runServe(ctx context.Context, o *serveOptions, args []string, stderr io.Wri
 	url := o.broker
 	var storeBytes int64
 	var storeCheck func() error
+	var embedded *broker.Server
 	if url == "" {
 		if err := site.CheckEmbeddedBroker(); err != nil {
 			return err
@@ -208,6 +209,7 @@ func runServe(ctx context.Context, o *serveOptions, args []string, stderr io.Wri
 			return err
 		}
 		defer srv.Shutdown()
+		embedded = srv
 		url = srv.ClientURL()
 		storeBytes = srv.MaxStore()
 		storeCheck = srv.StoreWriteError
@@ -227,7 +229,10 @@ func runServe(ctx context.Context, o *serveOptions, args []string, stderr io.Wri
 		// exiting at once (review rv24d, finding 9).
 		nc, err = broker.ConnectWait(ctx, url, "undercurrent serve", auth, max(o.brokerWait, 0), func(msg string) { log.Info(msg) })
 	} else {
-		nc, err = broker.Connect(url, "undercurrent serve", auth)
+		// Within the process: the listener's TLS (and client
+		// certificates) are for other hosts; serve's own connection
+		// needs no CA file nor a certificate naming the listen address.
+		nc, err = embedded.ConnectInProcess("undercurrent serve", auth)
 	}
 	if err != nil {
 		if o.broker != "" && errors.Is(err, nats.ErrNoServers) {
@@ -340,7 +345,8 @@ func growStore(ctx context.Context, srv *broker.Server, log *slog.Logger) {
 
 // embeddedConfig turns the site's [broker] table into the embedded server's settings.
 func embeddedConfig(site *live.Site, dir string) (broker.ServerConfig, error) {
-	cfg := broker.ServerConfig{StoreDir: dir, Name: "undercurrent", Token: site.Broker.Token, MaxStore: site.Broker.StoreMaxBytes}
+	cfg := broker.ServerConfig{StoreDir: dir, Name: "undercurrent", Token: site.Broker.Token, MaxStore: site.Broker.StoreMaxBytes,
+		TLSCert: site.Broker.ListenTLSCert, TLSKey: site.Broker.ListenTLSKey, TLSClientCA: site.Broker.ListenTLSClientCA}
 	var err error
 	if cfg.SyncAlways, cfg.SyncInterval, err = site.Broker.SyncSetting(); err != nil {
 		return cfg, err

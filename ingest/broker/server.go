@@ -1,14 +1,19 @@
 package broker
 
 import (
+	"crypto/tls"
+	"crypto/x509"
+	"encoding/pem"
 	"fmt"
 	"net"
 	"os"
 	"strconv"
+	"strings"
 	"sync"
 	"time"
 
 	"github.com/nats-io/nats-server/v2/server"
+	"github.com/nats-io/nats.go"
 )
 
 // User is one broker account user. Publish and Subscribe list the subjects
@@ -56,6 +61,14 @@ type ServerConfig struct {
 	// the next sync.
 	SyncAlways   bool
 	SyncInterval time.Duration
+	// TLSCert and TLSKey are PEM files of the listeners' certificate and
+	// its key (both or neither): with them the NATS and MQTT listeners
+	// speak TLS only, and a plaintext client is refused. TLSClientCA, a
+	// PEM file of certificate authorities, also requires every client to
+	// present a certificate signed by one of them (mutual TLS), checked in
+	// the handshake; without it any client may connect over TLS. See
+	// ListenerTLS.
+	TLSCert, TLSKey, TLSClientCA string
 	// Logf, when non-nil, receives the server's notices and warnings, and
 	// its errors unless Errorf is set.
 	Logf func(format string, args ...any)
@@ -102,6 +115,10 @@ func StartServer(cfg ServerConfig) (*Server, error) {
 			autoStore = false // nats-server takes its own guess
 		}
 	}
+	tlsConf, err := ListenerTLS(cfg.TLSCert, cfg.TLSKey, cfg.TLSClientCA)
+	if err != nil {
+		return nil, fmt.Errorf("broker: start server: %w", err)
+	}
 	opts := &server.Options{
 		ServerName:         cfg.Name,
 		Host:               cfg.Host,
@@ -118,6 +135,10 @@ func StartServer(cfg ServerConfig) (*Server, error) {
 	}
 	if opts.Port == 0 {
 		opts.Port = server.RANDOM_PORT
+	}
+	if tlsConf != nil {
+		opts.TLS, opts.TLSConfig, opts.TLSTimeout = true, tlsConf, 2
+		opts.TLSVerify = cfg.TLSClientCA != ""
 	}
 	for _, u := range cfg.Users {
 		su := &server.User{Username: u.Name, Password: u.Password}
@@ -140,6 +161,9 @@ func StartServer(cfg ServerConfig) (*Server, error) {
 		opts.MQTT.Port = cfg.MQTTPort
 		if opts.MQTT.Port == 0 {
 			opts.MQTT.Port = server.RANDOM_PORT
+		}
+		if tlsConf != nil {
+			opts.MQTT.TLSConfig, opts.MQTT.TLSTimeout = tlsConf.Clone(), 2
 		}
 	}
 	lock, err := lockStore(cfg.StoreDir)
@@ -180,6 +204,66 @@ func StartServer(cfg ServerConfig) (*Server, error) {
 	return &Server{ns: ns, cfg: cfg, lock: lock, opts: opts, autoStore: autoStore}, nil
 }
 
+// ListenerTLS reads the embedded broker's listener certificate and key
+// (PEM files, both or neither) and, when clientCA is given, the PEM file
+// of the authorities a client's certificate must be signed by (mutual
+// TLS). It returns nil, nil when no certificate is given. An error names
+// the file that is missing, unreadable or holds no usable PEM block, and
+// a key that does not match its certificate.
+func ListenerTLS(certFile, keyFile, clientCA string) (*tls.Config, error) {
+	switch {
+	case certFile == "" && keyFile == "" && clientCA == "":
+		return nil, nil
+	case certFile == "" || keyFile == "":
+		return nil, fmt.Errorf("listener TLS: give the certificate and its key together (got certificate %q, key %q)", certFile, keyFile)
+	}
+	certPEM, err := readPEM(certFile, "certificate", "CERTIFICATE")
+	if err != nil {
+		return nil, err
+	}
+	keyPEM, err := readPEM(keyFile, "key", "PRIVATE KEY")
+	if err != nil {
+		return nil, err
+	}
+	pair, err := tls.X509KeyPair(certPEM, keyPEM)
+	if err != nil {
+		return nil, fmt.Errorf("listener TLS: certificate %s with key %s: %w", certFile, keyFile, err)
+	}
+	conf := &tls.Config{MinVersion: tls.VersionTLS12, Certificates: []tls.Certificate{pair}}
+	if clientCA != "" {
+		caPEM, err := readPEM(clientCA, "client CA", "CERTIFICATE")
+		if err != nil {
+			return nil, err
+		}
+		pool := x509.NewCertPool()
+		if !pool.AppendCertsFromPEM(caPEM) {
+			return nil, fmt.Errorf("listener TLS: client CA %s: no certificate could be parsed", clientCA)
+		}
+		conf.ClientCAs, conf.ClientAuth = pool, tls.RequireAndVerifyClientCert
+	}
+	return conf, nil
+}
+
+// readPEM reads a PEM file and checks that it holds a block whose type
+// ends with want ("CERTIFICATE", "PRIVATE KEY"); what names the file's
+// role in errors.
+func readPEM(file, what, want string) ([]byte, error) {
+	data, err := os.ReadFile(file)
+	if err != nil {
+		return nil, fmt.Errorf("listener TLS: %s: %w", what, err)
+	}
+	for rest := data; ; {
+		var b *pem.Block
+		b, rest = pem.Decode(rest)
+		if b == nil {
+			return nil, fmt.Errorf("listener TLS: %s %s: no PEM %s block in it", what, file, want)
+		}
+		if strings.HasSuffix(b.Type, want) {
+			return data, nil
+		}
+	}
+}
+
 // unlock releases a store lock taken by lockStore.
 func unlock(f *os.File) {
 	if f != nil {
@@ -187,8 +271,24 @@ func unlock(f *os.File) {
 	}
 }
 
-// ClientURL returns the nats:// URL clients connect to.
+// ClientURL returns the URL clients connect to: nats://, or tls:// when
+// the listener has a certificate.
+//
+// A client in the same process can connect without the listener (and its
+// TLS and client certificates) through InProcess.
 func (s *Server) ClientURL() string { return s.ns.ClientURL() }
+
+// ConnectInProcess connects a client in this process to s as Connect
+// does, with auth's user and password, token or credentials, but without
+// going through the listener: no TLS is spoken (nothing leaves the
+// process, and auth's CA and certificate files are not used), so serve
+// reaches its own broker whatever name the listener's certificate holds
+// and whether or not client certificates are required.
+func (s *Server) ConnectInProcess(name string, auth Auth) (*nats.Conn, error) {
+	auth.CAFile, auth.CertFile, auth.KeyFile = "", "", ""
+	auth.inProcess = s.ns
+	return Connect(strings.Replace(s.ClientURL(), "tls://", "nats://", 1), name, auth)
+}
 
 // MQTTAddr returns host:port of the MQTT listener, or "" when disabled.
 func (s *Server) MQTTAddr() string {

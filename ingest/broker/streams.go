@@ -654,6 +654,9 @@ type Auth struct {
 	// file (user JWT and seed), for a broker that authenticates that way.
 	CAFile, CertFile, KeyFile string
 	CredsFile                 string
+	// inProcess, when set, is the server in this process to connect to
+	// without a listener (Server.ConnectInProcess).
+	inProcess nats.InProcessConnProvider
 }
 
 // Connect dials url (a comma-separated list of nats:// or tls:// URLs for
@@ -697,6 +700,9 @@ func Connect(url, name string, auth Auth) (*nats.Conn, error) {
 	}
 	if auth.CredsFile != "" {
 		opts = append(opts, nats.UserCredentials(auth.CredsFile))
+	}
+	if auth.inProcess != nil {
+		opts = append(opts, nats.InProcessServer(auth.inProcess))
 	}
 	nc, err := nats.Connect(url, opts...)
 	if err != nil {

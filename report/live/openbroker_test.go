@@ -27,6 +27,10 @@ func TestCheckEmbeddedBrokerOffLoopback(t *testing.T) {
 		{"opted in", `listen = "0.0.0.0:4222"` + "\n" + `mqtt = "0.0.0.0:1883"` + "\nallow_anonymous = true", false},
 		{"token", `listen = "0.0.0.0:4222"` + "\n" + `mqtt = "0.0.0.0:1883"` + "\n" + `token = "t0k"`, false},
 		{"users", `listen = "0.0.0.0:4222"` + "\n" + `mqtt = "0.0.0.0:1883"` + "\n[[broker.users]]\nname = \"a\"\npassword = \"b\"", false},
+		// TLS alone hides the traffic but lets anyone connect; client
+		// certificates required (mutual TLS) authenticate.
+		{"TLS only", `listen = "0.0.0.0:4222"` + "\n" + `mqtt = "0.0.0.0:1883"` + "\n" + `listen_tls_cert = "b.pem"` + "\n" + `listen_tls_key = "b-key.pem"`, true},
+		{"mutual TLS", `listen = "0.0.0.0:4222"` + "\n" + `mqtt = "0.0.0.0:1883"` + "\n" + `listen_tls_cert = "b.pem"` + "\n" + `listen_tls_key = "b-key.pem"` + "\n" + `listen_tls_client_ca = "ca.pem"`, false},
 	}
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {

@@ -129,12 +129,24 @@ type BrokerConfig struct {
 	// its certificate, and the client certificate and key when it asks
 	// for one (both or neither); Credentials is a NATS credentials file
 	// for a broker that authenticates users that way. Relative paths are
-	// taken from the site file's directory. Not used by the embedded
-	// broker.
+	// taken from the site file's directory. serve's own connection to
+	// its embedded broker does not use them (it is made within the
+	// process, see broker.Server.ConnectInProcess).
 	TLSCA       string `toml:"tls_ca"`
 	TLSCert     string `toml:"tls_cert"`
 	TLSKey      string `toml:"tls_key"`
 	Credentials string `toml:"credentials"`
+	// ListenTLSCert and ListenTLSKey are the embedded broker's own
+	// certificate and key, PEM files (both or neither): with them its NATS
+	// and MQTT listeners speak TLS only (tls://, MQTT over TLS).
+	// ListenTLSClientCA, with them, is a PEM file of the authorities whose
+	// client certificates the listeners require (mutual TLS); a listener
+	// off loopback with it needs no accounts (see OpenBroker). Relative
+	// paths are taken from the site file's directory. Not used with
+	// --broker.
+	ListenTLSCert     string `toml:"listen_tls_cert"`
+	ListenTLSKey      string `toml:"listen_tls_key"`
+	ListenTLSClientCA string `toml:"listen_tls_client_ca"`
 }
 
 // BrokerUser is one account of the embedded broker.
@@ -381,21 +393,26 @@ func (s *Site) CheckEmbeddedBroker() error {
 		}
 	}
 	if addr := s.OpenBroker(); addr != "" && !s.Broker.AllowAnonymous {
+		if s.Broker.ListenTLSCert != "" {
+			addr += "; TLS without listen_tls_client_ca hides the traffic but lets any client connect"
+		}
 		return fmt.Errorf("live: %s: broker: the embedded broker would listen off loopback (%s) with no accounts: anyone who can reach it could read and forge sensor data, estimates and alarms and delete them all through the JetStream API. "+
 			"Add [[broker.users]] (the service's own account, named by [broker] user and password, and a gateway account that may only publish uc.data.>, MQTT uc/data/... included; see testdata/site/harrow-fen.toml) or a [broker] token, "+
-			"or keep listen and mqtt on 127.0.0.1, or set [broker] allow_anonymous = true to accept it (a closed network)", s.Path, addr)
+			"or require client certificates (listen_tls_cert, listen_tls_key and listen_tls_client_ca), or keep listen and mqtt on 127.0.0.1, or set [broker] allow_anonymous = true to accept it (a closed network)", s.Path, addr)
 	}
 	return nil
 }
 
 // OpenBroker returns the embedded broker's listen addresses that are off
 // loopback ("listen" and "mqtt" as given, comma-separated) when it has
-// neither users nor a token, or "" when it has them or listens on
-// loopback only. A host that is not an IP address other than
+// neither users nor a token nor requires client certificates
+// (listen_tls_client_ca), or "" when it has one of them or listens on
+// loopback only. TLS without client certificates is not enough: it hides
+// the traffic but lets anyone connect. A host that is not an IP address other than
 // "localhost" (a host name, or "0.0.0.0" and "::", every interface)
 // counts as off loopback; an empty host is the default, 127.0.0.1.
 func (s *Site) OpenBroker() string {
-	if len(s.Broker.Users) > 0 || s.Broker.Token != "" {
+	if len(s.Broker.Users) > 0 || s.Broker.Token != "" || s.Broker.ListenTLSClientCA != "" && s.Broker.ListenTLSCert != "" {
 		return ""
 	}
 	var open []string
@@ -601,7 +618,17 @@ func (s *Site) validate() error {
 	if (s.Broker.TLSCert == "") != (s.Broker.TLSKey == "") {
 		return fmt.Errorf("broker: give tls_cert and tls_key together (a client certificate and its key), or neither")
 	}
-	for _, f := range []*string{&s.Broker.TLSCA, &s.Broker.TLSCert, &s.Broker.TLSKey, &s.Broker.Credentials} {
+	if (s.Broker.ListenTLSCert == "") != (s.Broker.ListenTLSKey == "") {
+		given, missing := "broker.listen_tls_cert", "broker.listen_tls_key"
+		if s.Broker.ListenTLSCert == "" {
+			given, missing = missing, given
+		}
+		return keyErrorf(given, "%s without %s: give the embedded broker's certificate and its key together, or neither", given, missing)
+	}
+	if s.Broker.ListenTLSClientCA != "" && s.Broker.ListenTLSCert == "" {
+		return keyErrorf("broker.listen_tls_client_ca", "broker.listen_tls_client_ca needs listen_tls_cert and listen_tls_key: client certificates are checked in a TLS handshake")
+	}
+	for _, f := range []*string{&s.Broker.TLSCA, &s.Broker.TLSCert, &s.Broker.TLSKey, &s.Broker.Credentials, &s.Broker.ListenTLSCert, &s.Broker.ListenTLSKey, &s.Broker.ListenTLSClientCA} {
 		if *f != "" && !filepath.IsAbs(*f) {
 			*f = filepath.Join(filepath.Dir(s.Path), *f)
 		}
