@@ -50,14 +50,19 @@ type csvReader struct {
 	opScale    []float64
 	fast       bool // lines may take fastLine
 	decComma   bool // numbers write their decimals with a comma (WithDecimalComma)
-	quotes     bool // quoted fields may hold newlines (not in blank-separated files)
-	comment    []byte
-	pending    chan chan csvResult
-	jobs       chan csvJob
-	done       chan struct{}
-	wg         sync.WaitGroup
-	stopped    bool
-	ended      bool // Next reached the end of the input (see Release)
+	// qComma, in a comma-delimited file, marks the columns (by source
+	// index) whose quoted numbers write their decimals with a comma
+	// ("0,25"), as spreadsheets in decimal-comma locales save CSV: their
+	// quoted fields are read with decimal commas (quotedCommaColumns).
+	qComma  []bool
+	quotes  bool // quoted fields may hold newlines (not in blank-separated files)
+	comment []byte
+	pending chan chan csvResult
+	jobs    chan csvJob
+	done    chan struct{}
+	wg      sync.WaitGroup
+	stopped bool
+	ended   bool // Next reached the end of the input (see Release)
 	// nulAt is the line of a run of NUL bytes without a line end that
 	// split dropped (0: none); written by split, read after it ends.
 	nulAt   int
@@ -272,6 +277,9 @@ func newCSVReader(name string, rd io.Reader, cfg *config) (*csvReader, error) {
 	if r.decComma && r.delim == ',' && !r.ws {
 		return nil, fileErr(name, nil, "decimal commas need a delimiter other than the comma (in a comma-delimited file they are not read, quoted or not): save the file again with ';' as the delimiter, or with decimal points")
 	}
+	if !r.decComma && cfg.decimalComma == 0 && r.delim == ',' && !r.ws {
+		r.qComma = r.quotedCommaColumns()
+	}
 	if err := r.checkDigitGrouping(lineNo + 1 + bytes.Count(carry, []byte{'\n'})); err != nil {
 		return nil, err
 	}
@@ -279,7 +287,7 @@ func newCSVReader(name string, rd io.Reader, cfg *config) (*csvReader, error) {
 		pl.meta["decimal_separator"] = ","
 		pl.buildSchema()
 	}
-	r.fast = !r.ws && r.delim != '"' && !cfg.slowOnly && !r.decComma && pl.timeJoin < 0 && cfg.timeText.zone == nil
+	r.fast = !r.ws && r.delim != '"' && !cfg.slowOnly && !r.decComma && r.qComma == nil && pl.timeJoin < 0 && cfg.timeText.zone == nil
 	startLine := lineNo + 1
 	if pl.geodetic && pl.origin == nil {
 		// The origin is the first reading: parse ahead to it. A reading at
@@ -616,6 +624,63 @@ func (r *csvReader) firstRecordDecimalComma() bool {
 	return false
 }
 
+// quotedCommaColumns peeks at the data records of a comma-delimited file
+// (as firstRecordDecimalComma does) and returns, by source column, the
+// mapped number columns to read with decimal commas inside quotes: those
+// with a quoted number written with a decimal comma ("0,25") and none,
+// quoted or not, written with a decimal point (whole numbers decide
+// nothing). Such a comma cannot be a delimiter, and a spreadsheet in a
+// decimal-comma locale saving CSV with commas writes every decimal so.
+// A column whose commas all stand before exactly three digits ("1,500")
+// is not taken: its commas may group thousands, as spreadsheets in other
+// locales quote them. nil when there is none.
+func (r *csvReader) quotedCommaColumns() []bool {
+	peek, _ := r.br.Peek(64 << 10)
+	comma := make([]bool, r.ncols)
+	point := make([]bool, r.ncols)
+	var fields [][]byte
+	for len(peek) > 0 {
+		var ln []byte
+		ln, peek = cutLine(peek)
+		ln = bytes.TrimRight(ln, "\r")
+		t := bytes.TrimSpace(ln)
+		if len(t) == 0 || (len(r.comment) > 0 && bytes.HasPrefix(t, r.comment)) || bytes.IndexByte(ln, '"') < 0 && !bytes.Contains(ln, []byte{'.'}) {
+			continue
+		}
+		fields = splitFields(ln, r.delim, r.ws, fields[:0])
+		for _, u := range r.used {
+			if u.c == cGroup || u.src >= len(fields) {
+				continue
+			}
+			f := bytes.Trim(trimField(fields[u.src]), " \t")
+			switch {
+			case decimalPointText(f):
+				point[u.src] = true
+			case quotedField(fields[u.src]) && decimalCommaText(f):
+				comma[u.src] = comma[u.src] || !groupedLike(f)
+			}
+		}
+	}
+	var cols []bool
+	for c := range comma {
+		if comma[c] && !point[c] {
+			if cols == nil {
+				cols = make([]bool, r.ncols)
+			}
+			cols[c] = true
+		}
+	}
+	return cols
+}
+
+// groupedLike reports whether t is [sign] d{1,3} "," ddd: a number its
+// comma may group by thousands as well as mark decimals.
+func groupedLike(t []byte) bool {
+	t = bytes.TrimLeft(t, "+-")
+	i := bytes.IndexByte(t, ',')
+	return i >= 1 && i <= 3 && len(t)-i-1 == 3 && allDigits(t[:i]) && allDigits(t[i+1:])
+}
+
 // decimalPointText reports whether t is [sign] digits "." digits, possibly
 // with an exponent: a number written with a decimal point.
 func decimalPointText(t []byte) bool {
@@ -912,7 +977,8 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch, plain bool) 
 			var v float64
 			var ok bool
 			var badDate string
-			if r.decComma {
+			qComma := r.qComma != nil && r.qComma[u.src] && quotedField(fields[u.src])
+			if r.decComma || qComma {
 				v, ok, num = parseDecimalComma(t, num)
 			} else {
 				v, ok = parseNumber(t)
@@ -957,6 +1023,8 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch, plain bool) 
 						// points are not a number's.
 					case groupingHint(t, r.decComma) != "":
 						what += groupingHint(t, r.decComma)
+					case qComma && bytes.IndexByte(t, '.') >= 0:
+						what += " (the column's quoted numbers are read with decimal commas, as its first quoted numbers write them, so a point is not a decimal point)"
 					case r.decComma && bytes.IndexByte(t, '.') >= 0:
 						// Only a point the setting rejects: "+0200" or a
 						// word held none, and the hint sent the user
@@ -968,7 +1036,7 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch, plain bool) 
 					case r.delim == ',' && quotedField(fields[u.src]) && decimalCommaText(t):
 						// "0,25" quoted in a comma-delimited file, as some
 						// locales' spreadsheets save CSV: no hint was given.
-						what += " (a decimal comma inside quotes, as spreadsheets in some locales save CSV? decimal commas are read only in files whose delimiter is not the comma: save the file again with ';' as the delimiter, or with decimal points)"
+						what += " (a decimal comma inside quotes, as spreadsheets in some locales save CSV? in a comma-delimited file they are read only in a column that writes no decimal point, and not when every comma stands before three digits, as 1,500 grouping thousands does: save the file again with ';' as the delimiter, or with decimal points)"
 					}
 					if _, err := unitScale(kindOf(u.c), string(t)); err == nil && len(t) > 0 {
 						what += " (a row of units under the header? make it a comment line, starting with the comment prefix, or delete it)"

@@ -1,6 +1,7 @@
 package ingest
 
 import (
+	"fmt"
 	"strings"
 	"testing"
 	"time"
@@ -64,18 +65,73 @@ func TestDecimalCommaHintOnlyWithPoint(t *testing.T) {
 }
 
 // A comma-delimited CSV whose numbers are quoted with decimal commas
-// ("0,25"), as spreadsheets in decimal-comma locales save CSV: refused, as
-// a comma cannot be both the delimiter and the decimal mark, but with a
-// message that names the file, line and column and says what to do. Before,
-// it said only that "1776760800,0" was not a time, and --decimal-comma
-// that decimal commas need another delimiter.
+// ("0,25"), as spreadsheets in decimal-comma locales save CSV: inside
+// quotes the comma cannot be the delimiter, so a column whose quoted
+// numbers are all written so is read with decimal commas. Before, the
+// file was refused ("a decimal comma inside quotes ... save the file
+// again with ';'"). A column that also holds a decimal point, or whose
+// commas all stand before three digits ("1,500": thousands?), is refused
+// as before; so is --decimal-comma on a comma-delimited file, which would
+// read the unquoted fields' commas as decimals too.
 func TestQuotedDecimalCommaInCommaFile(t *testing.T) {
-	const text = "time,x,y,z,bx,by,bz\n" +
-		`"1776760800,0","0,0","0","0,25","458,96","16021,02","-46258,72"` + "\n"
+	const head = "time,x,y,z,bx,by,bz\n"
+	text := head +
+		`"1776760800,0","0,0","0","0,25","458,96","16021,02","-46258,72"` + "\n" +
+		`"1776760800,5","0,1",0,"0,25",459,"16021,5","-4,6258E+04"` + "\n"
 	p := writeFile(t, "qdc.csv", text)
-	_, err := ReadSamples(p)
-	wantErr(t, err, `qdc.csv:2: column time: "1776760800,0" is not a number or an RFC 3339 time (a decimal comma inside quotes`)
+	s, err := ReadSamples(p)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, c := range []struct {
+		name string
+		got  []float64
+		want []float64
+	}{
+		{"time", s.Time, []float64{1776760800, 1776760800.5}},
+		{"x", s.X, []float64{0, 0.1}},
+		{"z", s.Z, []float64{0.25, 0.25}},
+		{"bx", s.Bx, []float64{458.96, 459}},
+		{"by", s.By, []float64{16021.02, 16021.5}},
+		{"bz", s.Bz, []float64{-46258.72, -46258}},
+	} {
+		if len(c.got) != len(c.want) {
+			t.Fatalf("%s: %v, want %v", c.name, c.got, c.want)
+		}
+		for i := range c.want {
+			if c.got[i] != c.want[i] {
+				t.Errorf("%s[%d] = %v, want %v", c.name, i, c.got[i], c.want[i])
+			}
+		}
+	}
+
+	// A column of decimal points beside them is read with points.
+	s, err = ReadSamples(writeFile(t, "beside.csv", head+
+		`"1776760800,0","0,0",0,"0,25","458,96",16021.02,-46258`+"\n"))
+	if err != nil || s.Bx[0] != 458.96 || s.By[0] != 16021.02 {
+		t.Errorf("a column of points beside quoted decimal commas: %v", err)
+	}
+	// A decimal point in a column of quoted decimal commas: refused.
+	_, err = ReadSamples(writeFile(t, "mixed2.csv", head+
+		`1,0,0,0,"458,96","16021,5",-46258`+"\n"+`2,0,0,0,"458,97","16021.5",-46258`+"\n"))
+	wantErr(t, err, `mixed2.csv:2: column by: "16021,5" is not a number (a decimal comma inside quotes`)
+	wantErr(t, err, "read only in a column that writes no decimal point")
+	// The same past what is looked at before reading (64 KiB): the
+	// point is refused where it stands.
+	var long strings.Builder
+	long.WriteString(head)
+	for i := range 3000 {
+		fmt.Fprintf(&long, "%d,0,0,0,\"458,96\",16021,-46258\n", i)
+	}
+	long.WriteString(`3000,0,0,0,"458.97",16021,-46258` + "\n")
+	_, err = ReadSamples(writeFile(t, "late.csv", long.String()))
+	wantErr(t, err, `late.csv:3002: column bx: "458.97" is not a number (the column's quoted numbers are read with decimal commas`)
+	// Commas that may group thousands: not read as decimals.
+	_, err = ReadSamples(writeFile(t, "grouped.csv", head+
+		`1,0,0,0,"1,458","16,021","-46,258"`+"\n"))
+	wantErr(t, err, `grouped.csv:2: column bx: "1,458" is not a number`)
 	wantErr(t, err, "save the file again with ';' as the delimiter")
+
 	_, err = ReadSamples(p, WithDecimalComma(true))
 	wantErr(t, err, "decimal commas need a delimiter other than the comma")
 	wantErr(t, err, "save the file again with ';' as the delimiter")

@@ -32,6 +32,10 @@ type command struct {
 	// flag parsing. An error wrapped by usageErrorf exits with status 2,
 	// any other error with status 1.
 	run func(ctx context.Context, fs *pflag.FlagSet, args []string, stdout, stderr io.Writer) error
+	// outDir says that --output names a result directory the run
+	// replaces whole (stageDir): runCommand holds its lock (outlock.go)
+	// for the whole run, so that a second run naming it is refused.
+	outDir bool
 }
 
 var commands = map[string]*command{}
@@ -248,6 +252,21 @@ func runCommand(ctx context.Context, args []string, stdout, stderr io.Writer) in
 		return 2
 	}
 	asJSON := wantsJSON(fs, nil)
+	// A second run writing the same result directory is refused before
+	// it touches anything (outlock.go).
+	if c.outDir {
+		if f := fs.Lookup("output"); f != nil && f.Value.String() != "" {
+			unlock, err := lockOutDir(f.Value.String())
+			if err != nil {
+				fmt.Fprintf(stderr, "undercurrent %s: %v\n", name, err)
+				if asJSON {
+					writeJSONError(stdout, name, "output", err.Error(), f.Value.String(), nil)
+				}
+				return 1
+			}
+			defer unlock()
+		}
+	}
 	// Temporary files that a run killed outright (kill -9, a power cut)
 	// left beside this run's outputs are removed once stale.
 	// An earlier result directory that a run killed while replacing it

@@ -25,6 +25,7 @@ func init() {
 	var decimalComma bool
 	register(&command{
 		name:    "demo",
+		outDir:  true,
 		usage:   "[-o DIR]",
 		summary: "simulate the bundled Fenwick Lane survey and run the whole job on it",
 		long: `Demo simulates the bundled example survey (` + simulate.DemoPath + `):

@@ -383,6 +383,7 @@ func init() {
 	o := &locateOptions{}
 	register(&command{
 		name:    "locate",
+		outDir:  true,
 		usage:   "[flags] LOG...",
 		summary: "estimate where conductors run, how deep, and the current they carry",
 		long: `Locate reads one or more magnetometer logs (CSV, Arrow IPC, Parquet or

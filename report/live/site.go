@@ -489,13 +489,7 @@ func ParseSite(name string, data []byte) (*Site, error) {
 		// line and column, as the decoder's refusals are (decodeError).
 		var ke *keyError
 		if errors.As(err, &ke) {
-			header, index, key := ke.header, ke.index, ke.key
-			if header == "" {
-				var table string
-				table, key, _ = strings.Cut(ke.key, ".")
-				header, index = "["+table+"]", 0
-			}
-			if line, col := tableKey(data, header, index, key); line > 0 {
+			if line, col := ke.where(data); line > 0 {
 				return nil, fmt.Errorf("live: %s:%d:%d: %w", name, line, col, err)
 			}
 		}
@@ -515,12 +509,10 @@ func ParseSite(name string, data []byte) (*Site, error) {
 // REASON" (or the calibration reader's own message for a file that is
 // read but is not a calibration).
 func (s *Site) checkCalibrations(data []byte) error {
-	k := 0 // the sensor's place among all [[asset.sensor]] tables
 	for ai := range s.Assets {
 		a := &s.Assets[ai]
 		for si := range a.Sensors {
 			sen := &a.Sensors[si]
-			k++
 			if sen.Calibration == "" {
 				continue
 			}
@@ -529,7 +521,7 @@ func (s *Site) checkCalibrations(data []byte) error {
 				continue
 			}
 			where := s.Path
-			if line, col := tableKey(data, "[[asset.sensor]]", k-1, "calibration"); line > 0 {
+			if line, col := assetKey(data, ai, "sensor", si, "calibration"); line > 0 {
 				where = fmt.Sprintf("%s:%d:%d", s.Path, line, col)
 			}
 			var pe *fs.PathError
@@ -616,7 +608,11 @@ func (s *Site) validate() error {
 		return keyErrorf("broker.replicas", "broker.replicas %d: want 1 to 5", s.Broker.Replicas)
 	}
 	if (s.Broker.TLSCert == "") != (s.Broker.TLSKey == "") {
-		return fmt.Errorf("broker: give tls_cert and tls_key together (a client certificate and its key), or neither")
+		key := "broker.tls_cert"
+		if s.Broker.TLSCert == "" {
+			key = "broker.tls_key"
+		}
+		return keyErrorf(key, "broker: give tls_cert and tls_key together (a client certificate and its key), or neither")
 	}
 	if (s.Broker.ListenTLSCert == "") != (s.Broker.ListenTLSKey == "") {
 		given, missing := "broker.listen_tls_cert", "broker.listen_tls_key"
@@ -643,10 +639,10 @@ func (s *Site) validate() error {
 	for i := range s.Assets {
 		a := &s.Assets[i]
 		if err := broker.ValidToken(a.Name); err != nil {
-			return fmt.Errorf("asset %d: name: %w", i+1, err)
+			return &keyError{header: "[[asset]]", asset: i, key: "name", err: fmt.Errorf("asset %d: name: %w", i+1, err)}
 		}
 		if seen[a.Name] {
-			return fmt.Errorf("asset %q listed twice", a.Name)
+			return &keyError{header: "[[asset]]", asset: i, key: "name", err: fmt.Errorf("asset %q listed twice", a.Name)}
 		}
 		seen[a.Name] = true
 		if a.Start.kind == startUnset {
@@ -655,21 +651,9 @@ func (s *Site) validate() error {
 		if err := a.validate(filepath.Dir(s.Path)); err != nil {
 			var ke *keyError
 			if errors.As(err, &ke) {
-				// a.validate numbers the asset's own conductors and
-				// sensors; the file's line is found by their place among
-				// all of them.
-				switch ke.header {
-				case "[[asset.conductor]]":
-					for _, b := range s.Assets[:i] {
-						ke.index += len(b.Conductors)
-					}
-				case "[[asset.sensor]]":
-					for _, b := range s.Assets[:i] {
-						ke.index += len(b.Sensors)
-					}
-				case "[[asset]]":
-					ke.index = i
-				}
+				// a.validate numbers the asset's own tables; the file's
+				// line is found within the i-th [[asset]].
+				ke.asset = i
 			}
 			return fmt.Errorf("asset %q: %w", a.Name, err)
 		}
@@ -683,10 +667,10 @@ func (a *AssetConfig) validate(dir string) error {
 		a.Mode = "dc"
 	case "ac":
 		if !(a.Frequency > 0) || a.Frequency > 1e5 {
-			return fmt.Errorf("frequency %v: mode \"ac\" needs a frequency in Hz", a.Frequency)
+			return assetErrorf("[[asset]]", 0, "frequency", []string{"mode"}, "frequency %v: mode \"ac\" needs a frequency in Hz", a.Frequency)
 		}
 	default:
-		return fmt.Errorf("mode %q: want \"dc\" or \"ac\"", a.Mode)
+		return assetErrorf("[[asset]]", 0, "mode", nil, "mode %q: want \"dc\" or \"ac\"", a.Mode)
 	}
 	if a.Window.Duration == 0 {
 		a.Window.Duration = time.Second
@@ -696,54 +680,54 @@ func (a *AssetConfig) validate(dir string) error {
 			err: fmt.Errorf("window %v: want 1ms to %v", a.Window.Duration, maxWindow)}
 	}
 	if a.Mode == "ac" && a.Window.Seconds()*a.Frequency < 2 {
-		return fmt.Errorf("window %v holds fewer than two cycles at %v Hz", a.Window.Duration, a.Frequency)
+		return assetErrorf("[[asset]]", 0, "window", []string{"frequency"}, "window %v holds fewer than two cycles at %v Hz", a.Window.Duration, a.Frequency)
 	}
 	switch a.Model {
 	case "", "fixed":
 		a.Model = "fixed"
 		if len(a.Conductors) == 0 {
-			return fmt.Errorf("model \"fixed\" needs at least one [[asset.conductor]]")
+			return assetErrorf("[[asset]]", 0, "model", nil, "model \"fixed\" needs at least one [[asset.conductor]]")
 		}
 	case "commission":
 		if a.Commission.Duration == 0 {
 			a.Commission.Duration = time.Minute
 		}
 		if a.Commission.Duration < a.Window.Duration {
-			return fmt.Errorf("commission %v is shorter than one window", a.Commission.Duration)
+			return assetErrorf("[[asset]]", 0, "commission", []string{"window"}, "commission %v is shorter than one window", a.Commission.Duration)
 		}
 	default:
-		return fmt.Errorf("model %q: want \"fixed\" or \"commission\"", a.Model)
+		return assetErrorf("[[asset]]", 0, "model", nil, "model %q: want \"fixed\" or \"commission\"", a.Model)
 	}
 	if a.Noise < 0 || math.IsNaN(a.Noise) {
-		return fmt.Errorf("noise %v: want a non-negative value in nT", a.Noise)
+		return assetErrorf("[[asset]]", 0, "noise", nil, "noise %v: want a non-negative value in nT", a.Noise)
 	}
 	switch f := a.EarthField; {
 	case f == nil && a.Mode == "dc":
 		a.fieldLo, a.fieldHi = defaultEarthField[0], defaultEarthField[1]
 	case f == nil:
 	case len(f) != 2 || !(f[0] >= 0) || !(f[1] >= f[0]) || math.IsInf(f[1], 0) || f[1] == f[0] && f[0] != 0:
-		return fmt.Errorf("earth_field %v: want [low, high] in nT with 0 <= low < high, or [0, 0] for no check", f)
+		return assetErrorf("[[asset]]", 0, "earth_field", nil, "earth_field %v: want [low, high] in nT with 0 <= low < high, or [0, 0] for no check", f)
 	default:
 		a.fieldLo, a.fieldHi = f[0], f[1]
 	}
 	if len(a.Sensors) == 0 {
-		return fmt.Errorf("no [[asset.sensor]] tables")
+		return assetErrorf("[[asset]]", 0, "name", nil, "no [[asset.sensor]] tables")
 	}
 	names := map[string]bool{}
 	for i := range a.Sensors {
 		s := &a.Sensors[i]
 		if err := broker.ValidToken(s.Name); err != nil {
-			return fmt.Errorf("sensor %d: %w", i+1, err)
+			return &keyError{header: "[[asset.sensor]]", index: i, key: "name", err: fmt.Errorf("sensor %d: %w", i+1, err)}
 		}
 		if names[s.Name] {
-			return fmt.Errorf("sensor %q listed twice", s.Name)
+			return assetErrorf("[[asset.sensor]]", i, "name", nil, "sensor %q listed twice", s.Name)
 		}
 		names[s.Name] = true
 		if err := s.checkPlace(i); err != nil {
 			return err
 		}
 		if !(s.Range >= 0) || math.IsInf(s.Range, 0) {
-			return fmt.Errorf("sensor %q: range_nt %v: want the sensor's range in nT, above 0 (or 0: not stated)", s.Name, s.Range)
+			return assetErrorf("[[asset.sensor]]", i, "range_nt", nil, "sensor %q: range_nt %v: want the sensor's range in nT, above 0 (or 0: not stated)", s.Name, s.Range)
 		}
 		if s.Calibration != "" && !filepath.IsAbs(s.Calibration) {
 			s.Calibration = filepath.Join(dir, s.Calibration)
@@ -756,7 +740,7 @@ func (a *AssetConfig) validate(dir string) error {
 			c.Name = fmt.Sprintf("c%d", i+1)
 		}
 		if cnames[c.Name] {
-			return fmt.Errorf("conductor %q listed twice", c.Name)
+			return assetErrorf("[[asset.conductor]]", i, "name", nil, "conductor %q listed twice", c.Name)
 		}
 		cnames[c.Name] = true
 		if err := c.checkPlace(i); err != nil {
@@ -780,7 +764,7 @@ func (a *AssetConfig) validate(dir string) error {
 			// lines to the names and to give a go-and-return pair its
 			// spacing) and which way its current is counted (direction).
 			if c.dirSet && c.Direction == ([3]float64{}) {
-				return fmt.Errorf("conductor %q: direction is zero", c.Name)
+				return assetErrorf("[[asset.conductor]]", i, "direction", nil, "conductor %q: direction is zero", c.Name)
 			}
 			// Commissioning fits infinite lines: a segment's kind or
 			// ends would be ignored, and finite bars (a bend, risers)
@@ -804,7 +788,7 @@ func (a *AssetConfig) validate(dir string) error {
 				if c.pointSet {
 					with, without = without, with
 				}
-				return fmt.Errorf("conductor %q gives a point and %q does not: with model \"commission\" give every conductor's point (where it runs, roughly) or none", with, without)
+				return assetErrorf("[[asset.conductor]]", i, "point", nil, "conductor %q gives a point and %q does not: with model \"commission\" give every conductor's point (where it runs, roughly) or none", with, without)
 			}
 			continue
 		}
@@ -812,14 +796,14 @@ func (a *AssetConfig) validate(dir string) error {
 		case "", "line":
 			c.Kind = "line"
 			if c.Direction == ([3]float64{}) {
-				return fmt.Errorf("conductor %q: direction is zero", c.Name)
+				return assetErrorf("[[asset.conductor]]", i, "direction", nil, "conductor %q: direction is zero", c.Name)
 			}
 		case "segment":
 			if c.From == c.To {
-				return fmt.Errorf("conductor %q: from and to are the same point", c.Name)
+				return assetErrorf("[[asset.conductor]]", i, "to", []string{"from"}, "conductor %q: from and to are the same point", c.Name)
 			}
 		default:
-			return fmt.Errorf("conductor %q: kind %q: want \"line\" or \"segment\"", c.Name, c.Kind)
+			return assetErrorf("[[asset.conductor]]", i, "kind", nil, "conductor %q: kind %q: want \"line\" or \"segment\"", c.Name, c.Kind)
 		}
 	}
 	if a.Model == "fixed" {
@@ -837,15 +821,18 @@ func (a *AssetConfig) validate(dir string) error {
 	}
 	for _, n := range a.Alarms.Balance {
 		if !cnames[n] && a.Model == "fixed" {
-			return fmt.Errorf("alarms.balance names conductor %q, which is not listed", n)
+			return assetErrorf("[asset.alarms]", 0, "balance", nil, "alarms.balance names conductor %q, which is not listed", n)
 		}
 	}
 	if a.Alarms.MaxChi2 == 0 {
 		a.Alarms.MaxChi2 = 25
 	}
-	for _, v := range []float64{a.Alarms.MaxCurrent, a.Alarms.MaxImbalance, a.Alarms.Step, a.Alarms.MaxChi2} {
-		if v < 0 || math.IsNaN(v) {
-			return fmt.Errorf("alarms: thresholds must be non-negative (got %v)", v)
+	for _, t := range []struct {
+		key string
+		v   float64
+	}{{"max_current", a.Alarms.MaxCurrent}, {"max_imbalance", a.Alarms.MaxImbalance}, {"step", a.Alarms.Step}, {"max_chi2", a.Alarms.MaxChi2}} {
+		if t.v < 0 || math.IsNaN(t.v) {
+			return assetErrorf("[asset.alarms]", 0, t.key, nil, "alarms: thresholds must be non-negative (got %s %v)", t.key, t.v)
 		}
 	}
 	return nil
@@ -1165,10 +1152,18 @@ type keyError struct {
 	key string
 	err error
 	// header and index, when header is set, are the table the key is in
-	// ("[[asset.conductor]]") and its place among the file's tables of
-	// that header (0-based); key is then the key within it.
+	// ("[[asset]]", "[[asset.conductor]]", "[asset.alarms]", "[broker]")
+	// and its place (0-based) among the tables of that header, counted
+	// within its asset for an asset's tables; key is then the key within
+	// it, and alt the keys to name in its stead, in order, when it is not
+	// in the file (frequency absent: the mode asking for it). An asset's
+	// table with none of them names the table's header line.
 	header string
 	index  int
+	alt    []string
+	// asset is the asset's place (0-based) among the [[asset]] tables,
+	// for a header of an asset's table; set by Site.validate.
+	asset int
 }
 
 func (e *keyError) Error() string { return e.err.Error() }
@@ -1177,4 +1172,32 @@ func (e *keyError) Unwrap() error { return e.err }
 // keyErrorf returns a keyError for key with the message format, args.
 func keyErrorf(key, format string, args ...any) error {
 	return &keyError{key: key, err: fmt.Errorf(format, args...)}
+}
+
+// assetErrorf returns a keyError for key (or, absent, the first of alt
+// given) in the index-th table of header within the asset being
+// validated, with the message format, args.
+func assetErrorf(header string, index int, key string, alt []string, format string, args ...any) error {
+	return &keyError{header: header, index: index, key: key, alt: alt, err: fmt.Errorf(format, args...)}
+}
+
+// where returns the line and column the keyError names in the site file
+// text, 0, 0 when it cannot be found.
+func (e *keyError) where(data []byte) (line, col int) {
+	header, index, key := e.header, e.index, e.key
+	if header == "" {
+		var table string
+		table, key, _ = strings.Cut(e.key, ".")
+		header, index = "["+table+"]", 0
+	}
+	name := strings.Trim(header, "[]")
+	if name == "asset" || strings.HasPrefix(name, "asset.") {
+		return assetKey(data, e.asset, strings.TrimPrefix(strings.TrimPrefix(name, "asset"), "."), index, append([]string{key}, e.alt...)...)
+	}
+	for _, k := range append([]string{key}, e.alt...) {
+		if line, col := tableKey(data, header, index, k); line > 0 {
+			return line, col
+		}
+	}
+	return 0, 0
 }

@@ -173,3 +173,89 @@ func tableKey(data []byte, header string, index int, key string) (line, col int)
 	}
 	return 0, 0
 }
+
+// assetKey returns the 1-based line and the column of the value of the
+// first of keys found in one table of the asset-th (0-based) [[asset]] of
+// the site file text: the asset table itself when sub is "", else the
+// index-th (0-based, counted within that asset) table of [[asset.SUB]]
+// headers, or the [asset.SUB] table (index 0). A key of a sub-table
+// written dotted in the asset table ("alarms.step = 1") is found too.
+// When none of keys is on a line of its own there (an absent key, a
+// value over several lines, an inline table), it returns the line of the
+// table's header (or, for a sub-table with no header of its own, the
+// asset's) and column 1, so that a refusal still names where the table
+// is; 0, 0 when the asset is not found.
+func assetKey(data []byte, asset int, sub string, index int, keys ...string) (line, col int) {
+	want := "asset"
+	if sub != "" {
+		want += "." + sub
+	}
+	type at struct{ line, col int }
+	found := map[string]at{}
+	assetN, headerLine, assetLine := -1, 0, 0
+	counts := map[string]int{} // header name -> its tables seen in this asset
+	cur, in := "", false
+	for n, raw := range bytes.Split(data, []byte("\n")) {
+		s := strings.TrimSpace(string(raw))
+		if strings.HasPrefix(s, "[") {
+			h := strings.TrimSpace(strings.SplitN(s, "#", 2)[0])
+			array := strings.HasPrefix(h, "[[")
+			cur = strings.ReplaceAll(strings.Trim(h, "[] \t"), " ", "")
+			switch {
+			case cur == "asset" && array:
+				assetN++
+				clear(counts)
+				if assetN == asset {
+					assetLine = n + 1
+				}
+			case strings.HasPrefix(cur, "asset."):
+				counts[cur]++
+			}
+			in = assetN == asset && cur == want && (sub == "" || counts[cur]-1 == index)
+			if in {
+				headerLine = n + 1
+			}
+			continue
+		}
+		if assetN != asset {
+			continue
+		}
+		prefix := ""
+		if !in {
+			// A sub-table's key written dotted in the asset table.
+			if sub == "" || index != 0 || cur != "asset" {
+				continue
+			}
+			prefix = sub + "."
+		}
+		eq := strings.Index(s, "=")
+		if eq < 0 || strings.HasPrefix(s, "#") {
+			continue
+		}
+		k := strings.ReplaceAll(strings.Trim(strings.TrimSpace(s[:eq]), `"'`), " ", "")
+		if !strings.HasPrefix(k, prefix) {
+			continue
+		}
+		k = k[len(prefix):]
+		if _, ok := found[k]; ok {
+			continue
+		}
+		c := strings.Index(string(raw), "=") + 1
+		for c < len(raw) && (raw[c] == ' ' || raw[c] == '\t') {
+			c++
+		}
+		found[k] = at{n + 1, c + 1}
+	}
+	for _, k := range keys {
+		if p, ok := found[k]; ok {
+			return p.line, p.col
+		}
+	}
+	if headerLine == 0 {
+		headerLine = assetLine // a sub-table given inline or dotted
+	}
+	if headerLine > 0 {
+		return headerLine, 1
+	}
+	return 0, 0
+}
