@@ -371,10 +371,23 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 		stations = make([]route.Station, 0, len(fits))
 		pairRoute = followsPair(fits, ac)
 		placeShort := shortFitsUnplaced(fits)
-		for _, f := range fits {
+		cutShort := cutShortProblems(fits)
+		for i, f := range fits {
 			g, st := buildGroup(&f, ac, ref.of(&f), bs.ProfileMax, pairRoute, bs.SensorHeight)
 			if placeShort {
 				unplace(&f, &g, &st)
+			}
+			if w := cutShort[i]; w != "" && st.OK {
+				// Readings that end before they cross a line
+				// (cutShortProblems): not sound, and, as a fit too
+				// short to place the conductor (unplace), left out of
+				// the route's line, its steps and its cover.
+				if g.Problem != "" {
+					g.Problem += "; "
+				}
+				g.Problem += w
+				st.OK, st.Unplaced = false, true
+				st.Point, st.Problem = g.Centroid, g.Problem
 			}
 			d.Groups = append(d.Groups, g)
 			if fixedFailed(&f) {
