@@ -813,6 +813,12 @@ type fitter struct {
 	// whose residuals are correlated by the conductors not yet fitted, as
 	// before.
 	serialRho, serialWiden float64
+	// posWeighted is set while the chosen fit's readings are weighted by
+	// the positions' uncertainty (positionWeights): the serial checks then
+	// take the residuals in units of their own sigmas, and no sandwich.
+	posWeighted bool
+	// pos holds the position terms of the weighted fit (positionWeights).
+	pos *positionTerms
 	// scr lends the work buffers of the separables and the LM engine (its workspace
 	// scr.lm is shared by the fits: one runs at a time).
 	scr *scratch

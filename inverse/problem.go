@@ -245,6 +245,30 @@ type Settings struct {
 	// HuberC is the Huber threshold in units of the robust scale (1.4826 MAD); 0 means
 	// 1.345.
 	HuberC float64
+	// PositionSigmaPlan and PositionSigmaUp are the one-sigma uncertainty of every
+	// reading's logged position, m: across the plan (east and north, each) and in
+	// height (a sensor height that wanders unlogged: a walked pole, rough ground).
+	// Zero, the default, takes the positions as exact. Otherwise the field a
+	// reading would have at a position off by that much enters its variance: once
+	// the count of lines is chosen, each reading axis's variance is taken as
+	//
+	//	s^2 + (dB/dx PositionSigmaPlan)^2 + (dB/dy PositionSigmaPlan)^2 + (dB/dz PositionSigmaUp)^2
+	//
+	// with the gradient that of the fitted model at the reading (and a term of
+	// its curvature), the readings are corrected by the mean change the scatter
+	// makes, the fit is redone with weights s^2 over that variance, and so on to
+	// a fixed point (positionWeights; an errors-in-variables approximation, see
+	// positions.go), and the covariance is taken with each reading's three axes
+	// moving together (positionSandwich, DC), so that the sigmas of current,
+	// depth, offset and the rest include the positioning error. s is
+	// Problem.Sigma, or, unknown, the reading noise the residuals leave (the
+	// root of sum r^2/(s^2 + g^2) = DOF, at most the readings' own noise from
+	// their differences), the weighted residuals then scaling the whole
+	// variance. The count of lines is chosen before, as without them.
+	// The Result's notes carry PositionSigmaNote. Not with Robust, whose Huber
+	// weights and sandwich covariance stand on the residuals alone: the position
+	// sigmas are then not used and the notes say so (PositionSigmaRobustNote).
+	PositionSigmaPlan, PositionSigmaUp float64
 	// MaxIter bounds the Levenberg-Marquardt iterations per start; 0 means 200.
 	MaxIter int
 	// FTol, XTol and GTol are the relative convergence tolerances (sum of squares,
@@ -293,7 +317,7 @@ func (s *Settings) check() error {
 	for _, v := range []struct {
 		name string
 		v    float64
-	}{{"MinDepth", s.MinDepth}, {"HuberC", s.HuberC}, {"FTol", s.FTol}, {"XTol", s.XTol}, {"GTol", s.GTol}} {
+	}{{"MinDepth", s.MinDepth}, {"HuberC", s.HuberC}, {"PositionSigmaPlan", s.PositionSigmaPlan}, {"PositionSigmaUp", s.PositionSigmaUp}, {"FTol", s.FTol}, {"XTol", s.XTol}, {"GTol", s.GTol}} {
 		if !(v.v >= 0) || math.IsInf(v.v, 0) {
 			return fmt.Errorf("inverse: Settings.%s = %v, want 0 (the default) or a finite positive value", v.name, v.v)
 		}

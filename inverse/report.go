@@ -367,6 +367,34 @@ func (f *fitter) summariseAsIs(c *candidate) (*summary, error) {
 			cov0.ScaleSym(f.serialWiden, cov0)
 		}
 	}
+	if f.posWeighted {
+		// The whole covariance of each reading's axes under the position
+		// errors, in place of the weighted fit's s^2 A^-1 (positionSandwich);
+		// widened as above for correlated residuals.
+		a0 := mat.NewSymDense(cov0.SymmetricDim(), nil)
+		a0.CopySym(cov0)
+		if su.widen > 1 {
+			a0.ScaleSym(1/f.serialWiden, a0)
+		}
+		pc, err := f.positionSandwich(c, a0)
+		if err != nil {
+			return nil, err
+		}
+		if pc != nil {
+			if su.widen > 1 {
+				pc.ScaleSym(f.serialWiden, pc)
+			}
+			// Given the noise, the variances stand as stated; estimated,
+			// the weighted residuals scale them (su.sigma^2 over the noise
+			// the weights took), as they scale any weighted fit's.
+			cov0 = pc
+			if f.prob.Sigma > 0 {
+				cov0.ScaleSym(1/(su.sigma*su.sigma), cov0)
+			} else {
+				cov0.ScaleSym(1/f.pos.s2, cov0)
+			}
+		}
+	}
 	cov0.ScaleSym(su.sigma*su.sigma, cov0)
 	if f.set.Robust && sp.w != nil && !(f.prob.Sigma > 0) {
 		// Huber's asymptotic covariance in place of the weighted least-squares one,
@@ -1034,6 +1062,22 @@ func (f *fitter) report(c *candidate, scores []ModelScore) (*Result, error) {
 	if c == nil {
 		return nil, errors.New("inverse: no acceptable fit")
 	}
+	// The positions' uncertainty weighs the chosen fit's readings by their
+	// whole variance (positionWeights) before it is summarised; the count
+	// was chosen as without it.
+	var posNote string
+	if f.set.positioned() {
+		if f.set.Robust {
+			posNote = PositionSigmaRobustNote
+		} else {
+			var err error
+			if posNote, err = f.positionWeights(c); err != nil {
+				return nil, err
+			}
+			f.posWeighted = c.sp.w != nil
+			defer func() { f.posWeighted, f.pos = false, nil }()
+		}
+	}
 	// Residuals correlated along the readings widen the covariance taken
 	// under independence (serialFactor). DC only: an AC fit's readings are
 	// windows whose noise is measured from their own scatter.
@@ -1053,6 +1097,17 @@ func (f *fitter) report(c *candidate, scores []ModelScore) (*Result, error) {
 			copy(kept, res)
 		}
 		n, k := c.counts()
+		if f.posWeighted {
+			// Residuals whose sigmas differ from reading to reading (the
+			// positions' share follows the gradient) are compared in units of
+			// their own sigmas: raw, the flanks' larger ones read as
+			// correlation.
+			sr := make([]float64, len(res))
+			for i, v := range res {
+				sr[i] = v * c.sp.w[i]
+			}
+			res = sr
+		}
 		rho, widen = f.serialFactor(c, res, n-k)
 	}
 	var su *summary
@@ -1166,6 +1221,9 @@ func (f *fitter) report(c *candidate, scores []ModelScore) (*Result, error) {
 	}
 	if f.set.Robust {
 		r.Notes = append(r.Notes, RobustNote)
+	}
+	if posNote != "" {
+		r.Notes = append(r.Notes, posNote)
 	}
 	if sp.nrhs == 1 {
 		r.SerialCorrelation, r.SigmaWidening = su.rho, math.Sqrt(su.widen)

@@ -363,6 +363,12 @@ func lag1Within(res []float64, stride int, starts []int) (rho float64, pairs int
 // done.
 func (f *fitter) serialSandwich(c *candidate, c0 *mat.SymDense, unres []bool, r1 float64) (*mat.SymDense, error) {
 	sp := c.sp
+	if f.posWeighted {
+		// The sandwich takes the unweighted Jacobian and residuals: with
+		// the positions' weights each parameter is widened by the AR(1)
+		// factor instead.
+		return nil, nil
+	}
 	r0, err := sp.fullResiduals(c.x)
 	if err != nil {
 		return nil, err

@@ -80,14 +80,18 @@ type locateOptions struct {
 	sensorHeights []string
 	heightPerLog  []perLogValue
 	groundSigma   float64
-	noise         float64
-	rangeNT       float64 // --range-nt: the magnetometer's range, nT (clipped.go); 0 none given
-	robust        bool
-	despike       bool
-	stepK         float64
-	minStep       float64
-	title         string
-	workers       int
+	// positionSigma is --position-sigma as given; posPlan and posUp its
+	// values, m (inverse.Settings.PositionSigmaPlan, PositionSigmaUp).
+	positionSigma  string
+	posPlan, posUp float64
+	noise          float64
+	rangeNT        float64 // --range-nt: the magnetometer's range, nT (clipped.go); 0 none given
+	robust         bool
+	despike        bool
+	stepK          float64
+	minStep        float64
+	title          string
+	workers        int
 	// csvDecimalComma is --csv-decimal-comma: results.csv and findings.csv
 	// with semicolons and decimal commas (report.CSVOptions).
 	csvDecimalComma bool
@@ -161,7 +165,8 @@ func (o *locateOptions) setFlags(fs *pflag.FlagSet) {
 	fs.StringVar(&o.coverCode, "cover-code", "", "the code or practice the minimum cover comes from, quoted in the report (\"NEC Table 300.5\")")
 	fs.Float64Var(&o.referenceZ, "reference-z", 0, "report depths below the ground surface at up = `Z` metres, one flat level for the whole survey, instead of below the sensors' mean height; up is the log's local frame (on a latitude/longitude/height log, relative to the origin's height, by default the first reading's), so a ground height of G in the log's datum is Z = G minus the origin's height; warned when it lies above the sensors or does not fit a route whose sensors climb")
 	fs.StringArrayVar(&o.sensorHeights, "sensor-height", nil, "the sensors were carried `H` metres above the ground (cover = depth - H); for logs of crews whose sensors stood at different heights give each its own as LOG=H, again for each (LOG the log as given or its base name), and a bare H for the logs not named; with several sensors at different heights, H is the mean height of all of them; with heights in the log, the ground over each line is taken as the sensors' height where they pass over it minus H, else the ground is taken as level under each traverse")
-	fs.Float64Var(&o.groundSigma, "ground-sigma", 0, "the ground level is known to `S` metres (one sigma) from the depth reference, e.g. how steadily the sensors were held above it; added to the cover sigmas (which otherwise cover the reading noise only); an unsteady height that is not logged also biases the depths and makes their sigmas too small, which S does not mend: log the heights")
+	fs.Float64Var(&o.groundSigma, "ground-sigma", 0, "the ground level is known to `S` metres (one sigma) from the depth reference, e.g. how steadily the sensors were held above it; added to the cover sigmas (which otherwise cover the reading noise only); an unsteady height that is not logged also biases the depths and makes their sigmas too small, which S does not mend: log the heights, or state the wander with --position-sigma")
+	fs.StringVar(&o.positionSigma, "position-sigma", "", "the logged positions are known to `H[,V]` metres (one sigma, independent from reading to reading): H across the plan (east and north, each), V in height (a sensor height that wanders unlogged on a walked pole or rough ground; default: H); the fits then weigh each reading by its whole variance, the field's change over that position error added to the reading noise, and correct the mean change it makes, so the sigmas of current, depth, offset and cover include positioning error (e.g. --position-sigma 0.2,0.15 for satellite positions without corrections and a pole walked over rough ground); for AC, of each window's position; the count of conductors is chosen as without it; not with --robust")
 	fs.Float64Var(&o.noise, "noise", 0, "reading noise per axis, `NT` nanotesla, of each reading (for AC, each window's phasor then has NT/sqrt(samples in it)); default, or 0: estimated from the fits")
 	fs.Float64Var(&o.rangeNT, "range-nt", 0, "the magnetometer reads up to ±`NT` nanotesla on each axis: readings within a ten-thousandth of it (or ten times --noise) are taken as clipped and left out of the fits, with a warning, and a reading beyond it is an error; without it, only readings repeating one value exactly at an axis's extreme are")
 	fs.BoolVar(&o.robust, "robust", false, "down-weight outlying readings (Huber weights)")
@@ -266,6 +271,9 @@ func (o *locateOptions) check(fs *pflag.FlagSet) error {
 	}
 	if o.groundSigma < 0 || math.IsNaN(o.groundSigma) || math.IsInf(o.groundSigma, 0) {
 		return usageErrorf("--ground-sigma %g: want a length in metres >= 0", o.groundSigma)
+	}
+	if err := o.parsePositionSigma(); err != nil {
+		return err
 	}
 	if o.noise < 0 || math.IsNaN(o.noise) || math.IsInf(o.noise, 0) {
 		return usageErrorf("--noise %g: want a noise level in nT >= 0", o.noise)
@@ -2591,7 +2599,7 @@ func medianOf(v []float64) float64 {
 
 // fitSettings are the inverse settings of the options.
 func (o *locateOptions) fitSettings() *inverse.Settings {
-	set := &inverse.Settings{Count: o.nCount, Robust: o.robust}
+	set := &inverse.Settings{Count: o.nCount, Robust: o.robust, PositionSigmaPlan: o.posPlan, PositionSigmaUp: o.posUp}
 	if o.hasRefZ {
 		z := o.referenceZ
 		set.ReferenceZ = &z
@@ -2785,7 +2793,7 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 	}
 	// Positions that scatter from reading to reading (posjitter.go): the
 	// shared-misfit warning names them where they explain the misfit.
-	if w := positionJitter(sv, fits); w != "" {
+	if w := positionJitter(sv, fits, o.posPlan > 0 || o.posUp > 0); w != "" {
 		head.Warnings = append(head.Warnings, w)
 	}
 	// report.Build takes no context; its along-route analysis (the dipole
@@ -3659,4 +3667,40 @@ func mainsNotesOrWarnings(doc *report.Document, notes []string) {
 		}
 	}
 	doc.Warnings = append(append([]string(nil), notes...), doc.Warnings...)
+}
+
+// parsePositionSigma reads --position-sigma H[,V] into posPlan and posUp:
+// one value for both, or the plan's and the height's; lengths in metres,
+// finite and not negative, not both zero. Not with --robust, whose Huber
+// weights and covariance stand on the residuals alone
+// (inverse.PositionSigmaRobustNote).
+func (o *locateOptions) parsePositionSigma() error {
+	o.posPlan, o.posUp = 0, 0
+	t := strings.TrimSpace(o.positionSigma)
+	if t == "" {
+		return nil
+	}
+	parts := strings.Split(t, ",")
+	if len(parts) > 2 {
+		return usageErrorf("--position-sigma %q: want H or H,V (metres, across the plan and in height)", o.positionSigma)
+	}
+	var v [2]float64
+	for i, p := range parts {
+		x, err := strconv.ParseFloat(strings.TrimSpace(p), 64)
+		if err != nil || !(x >= 0) || math.IsInf(x, 0) {
+			return usageErrorf("--position-sigma %q: want H or H,V, each a length in metres >= 0 (as 0.2,0.15)", o.positionSigma)
+		}
+		v[i] = x
+	}
+	if len(parts) == 1 {
+		v[1] = v[0]
+	}
+	if v[0] == 0 && v[1] == 0 {
+		return usageErrorf("--position-sigma %q: both zero; leave the flag out for exact positions", o.positionSigma)
+	}
+	if o.robust {
+		return usageErrorf("--position-sigma and --robust do not go together: the Huber weights and their uncertainties stand on the residuals alone; give one")
+	}
+	o.posPlan, o.posUp = v[0], v[1]
+	return nil
 }

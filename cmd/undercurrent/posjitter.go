@@ -303,7 +303,7 @@ func jitterShown(res *inverse.Result, m float64, ac bool) bool {
 // positions as the cause of a misfit they explain), and returns a warning
 // naming the groups where the scatter matters (jitterNoiseRatio,
 // jitterDepthShare), or "" where it matters in none.
-func positionJitter(sv *survey, fits []report.Fit) string {
+func positionJitter(sv *survey, fits []report.Fit, stated bool) string {
 	var keys []string
 	var scat, spac, mis, noise, share []float64
 	for i, g := range sv.groups {
@@ -359,6 +359,10 @@ func positionJitter(sv *survey, fits []report.Fit) string {
 	if nz := medianOf(noise); nz > 0 {
 		against = fmt.Sprintf(" against the %.3g nT noise the readings themselves show", nz)
 	}
-	return fmt.Sprintf("the positions scatter from reading to reading by %.2g m (median; robust, from their fourth differences along each traverse, on %.2g m reading spacing) in %d of %d groups (%s), %.0f%% of the conductor's depth below the sensors: scattered positions (satellite positioning jitter, or positions rounded when stored) make the fits miss the readings by about %.3g nT RMS per component%s, most on the anomaly's flanks, and flatten and widen the fitted anomaly, so depths read deep, currents high and offsets off by more than their uncertainties, which count no position error; smooth the track or use corrected positions",
-		medianOf(scat), medianOf(spac), len(keys), len(sv.groups), which, 100*medianOf(share), medianOf(mis), against)
+	what := "so depths read deep, currents high and offsets off by more than their uncertainties, which count no position error; smooth the track or use corrected positions, or state the scatter with --position-sigma"
+	if stated {
+		what = "which --position-sigma counts in the fits' uncertainties and corrects on average as far as the value given holds; smooth the track or use corrected positions for tighter ones"
+	}
+	return fmt.Sprintf("the positions scatter from reading to reading by %.2g m (median; robust, from their fourth differences along each traverse, on %.2g m reading spacing) in %d of %d groups (%s), %.0f%% of the conductor's depth below the sensors: scattered positions (satellite positioning jitter, or positions rounded when stored) make the fits miss the readings by about %.3g nT RMS per component%s, most on the anomaly's flanks, and flatten and widen the fitted anomaly, %s",
+		medianOf(scat), medianOf(spac), len(keys), len(sv.groups), which, 100*medianOf(share), medianOf(mis), against, what)
 }

@@ -183,12 +183,12 @@ func TestPositionJitterSkipsCollapsedPair(t *testing.T) {
 	res := &inverse.Result{Sources: []inverse.SourceEstimate{line(4.39, 2.98, true), line(147073.5, 1.16, false), line(-147071.4, 1.16, false)}, RMS: 16.6, Sigma: 16.6}
 	sv := jitterSurvey(0.00045, res)
 	fits := make([]report.Fit, 1)
-	if w := positionJitter(sv, fits); w != "" {
+	if w := positionJitter(sv, fits, false); w != "" {
 		t.Errorf("collapsed pair: %q", w)
 	}
 	// A line above the sensors: the same.
 	res = &inverse.Result{Sources: []inverse.SourceEstimate{line(30, -0.1, true)}, RMS: 16.6, Sigma: 16.6}
-	if w := positionJitter(jitterSurvey(0.015, res), fits); w != "" {
+	if w := positionJitter(jitterSurvey(0.015, res), fits, false); w != "" {
 		t.Errorf("line above the sensors: %q", w)
 	}
 }
@@ -204,7 +204,7 @@ func TestPositionJitterNeedsTheMisfitShown(t *testing.T) {
 	src.Identifiable.Current = true
 	fits := make([]report.Fit, 1)
 	res := &inverse.Result{Sources: []inverse.SourceEstimate{src}, RMS: 4, Sigma: 4}
-	if w := positionJitter(jitterSurvey(0.1, res), fits); w != "" {
+	if w := positionJitter(jitterSurvey(0.1, res), fits, false); w != "" {
 		t.Errorf("fit at the noise: %q", w)
 	}
 	m, _, ok := jitterMisfit(res, jitterSurvey(0.1, res).groups[0].points, 0.1, 0, false)
@@ -212,7 +212,7 @@ func TestPositionJitterNeedsTheMisfitShown(t *testing.T) {
 		t.Fatalf("predicted misfit %g nT (ok %v), want well over the noise", m, ok)
 	}
 	res = &inverse.Result{Sources: []inverse.SourceEstimate{src}, RMS: m, Sigma: m}
-	if w := positionJitter(jitterSurvey(0.1, res), fits); !strings.Contains(w, "satellite positioning jitter") {
+	if w := positionJitter(jitterSurvey(0.1, res), fits, false); !strings.Contains(w, "satellite positioning jitter") {
 		t.Errorf("fit missing by the predicted %g nT: no warning", m)
 	}
 }

@@ -1,0 +1,470 @@
+package inverse
+
+import (
+	"fmt"
+	"math"
+	"slices"
+
+	"gonum.org/v1/gonum/mat"
+)
+
+// Uncertain positions (Settings.PositionSigmaPlan, PositionSigmaUp).
+//
+// A fit takes each reading's position as exact. A position off by d
+// (satellite positioning without corrections, a sensor height that wanders
+// unlogged on a walked pole) leaves the reading the field of the true
+// place, which differs from the model's at the logged one by about
+// grad B . d: an error in the variables whose size follows the field's
+// gradient, largest on the anomaly's flanks, the readings that fix the
+// depth and the offset, and nothing far from the line. Taken as noise of
+// one size everywhere (the plain fit), the flanks weigh too much and the
+// sigmas of depth and offset come out too small: in review 0.15 m of
+// height wander over a 25 A line left depth errors 2.1 times their sigma
+// (RMS), 31 of 84 fits beyond two sigma.
+//
+// To first order in d the position error adds to each reading axis's
+// variance
+//
+//	(dB/dx sp)^2 + (dB/dy sp)^2 + (dB/dz su)^2
+//
+// (sp across the plan, su in height, independent from reading to reading
+// and Gaussian), with the gradient that of the true field, here the fitted
+// model's at the logged position. The fit is weighted by the inverse of
+// the whole variance, refitted, the gradients taken again from the new
+// fit, and so on to a fixed point (positionRounds at most): generalised
+// least squares with a variance that depends on the fit, the usual
+// approximation to errors in the variables when the model is smooth on
+// the scale of the position error (the "effective variance" of fitting
+// with errors in both variables: Orear, Am. J. Phys. 50:912, 1982, for one
+// variable; from memory; here for three coordinates through the model's
+// gradient). Three things beyond the first order matter here and are
+// taken too (positionVariance): the curvature's own variance, which is
+// what remains where the gradient vanishes (the horizontal field right
+// over a line); the curvature's mean, sum_j H_jj s_j^2 / 2, by which the
+// readings are corrected at each round (a scatter flattens and widens the
+// anomaly: in review 0.2 m across the plan read 3.9 cm deep at 1.4 m, a
+// 0.15 m height wander 2.5 cm shallow, each two sigma and more, and the
+// correction left under 0.1 sigma); and that one position error moves all
+// three axes of a reading together, which diagonal weights cannot say,
+// so the covariance is the sandwich of the whole per-reading covariance
+// (positionSandwich; DC only). The count of lines is chosen before, as
+// without position sigmas.
+
+// positionRounds bounds the refits of positionWeights.
+const positionRounds = 8
+
+// positionRatioLow and positionRatioHigh bound the weighted chi-square
+// per degree of freedom of a fit with position sigmas (noise estimated)
+// beyond which its note says the variances taken do not match the
+// residuals: its sampling spread is sqrt(2/DOF), 0.09 on 240 readings.
+const positionRatioLow, positionRatioHigh = 0.5, 2.0
+
+// positionStep is the step of the central differences that give the
+// model's gradient, m: a thousandth of the closest reading's distance from
+// a line of 1 m, whose error (step over distance, squared) is far below
+// what matters to a variance.
+const positionStep = 1e-3
+
+// PositionSigmaNote starts the note a fit with Settings.PositionSigmaPlan or
+// PositionSigmaUp carries (Result.Notes): the positions' uncertainty entered
+// each reading's variance.
+const PositionSigmaNote = "position uncertainty in the reading variances"
+
+// PositionSigmaRobustNote is the note of a fit given position sigmas and
+// Robust: the position sigmas were not used.
+const PositionSigmaRobustNote = "position sigmas not used with robust (Huber) weights"
+
+// positioned reports whether the settings give the positions an
+// uncertainty.
+func (s *Settings) positioned() bool {
+	return s.PositionSigmaPlan > 0 || s.PositionSigmaUp > 0
+}
+
+// positionVariance returns, per row of the separable (a reading axis),
+// the variance the positions' uncertainty adds to it at the fit x, nT^2:
+// for a position error d of independent Gaussian axes of sd
+// s = (plan, plan, up), the field's change g.d + d.H.d/2 (g and H the
+// gradient and Hessian of the model's field: conductors, dipoles and a
+// background gradient; a uniform background has none) has the variance
+//
+//	sum_j (g_j s_j)^2 + 1/2 sum_jk (H_jk s_j s_k)^2
+//
+// (the second term, of the curvature, is what remains where the gradient
+// vanishes: the horizontal field right over a line, whose readings the
+// first term alone weighted as exact). For AC the mean over the real and
+// imaginary parts. Both by central differences. bias (m x nrhs, row-major)
+// is the mean of that change, sum_j H_jj s_j^2 / 2: the field a reading
+// logged at x has on average is the model's there plus bias (a scatter
+// flattens and widens the anomaly). grad (per row and part) is the
+// gradient times s, each axis's share of the first term, and curv the
+// second term, for positionSandwich.
+func (sp *separable) positionVariance(x []float64, plan, up float64) (g2, bias []float64, grad [][3]float64, curv []float64, err error) {
+	if err := sp.evaluate(x); err != nil {
+		return nil, nil, nil, nil, err
+	}
+	m, nr := sp.m, sp.nrhs
+	n := m * nr
+	h := positionStep
+	sig := [3]float64{plan, plan, up}
+	at := func(d [3]float64) ([]float64, error) {
+		out := make([]float64, n)
+		return out, sp.modelShifted(d, out)
+	}
+	f0, err := at([3]float64{})
+	if err != nil {
+		return nil, nil, nil, nil, err
+	}
+	var fp, fm [3][]float64
+	for j := range 3 {
+		if !(sig[j] > 0) {
+			continue
+		}
+		var d [3]float64
+		d[j] = h
+		if fp[j], err = at(d); err != nil {
+			return nil, nil, nil, nil, err
+		}
+		d[j] = -h
+		if fm[j], err = at(d); err != nil {
+			return nil, nil, nil, nil, err
+		}
+	}
+	v := make([]float64, n)
+	bias = make([]float64, n)
+	grad = make([][3]float64, n)
+	for j := range 3 {
+		if !(sig[j] > 0) {
+			continue
+		}
+		for i := range n {
+			g := (fp[j][i] - fm[j][i]) / (2 * h) * sig[j]
+			hjj := (fp[j][i] + fm[j][i] - 2*f0[i]) / (h * h) * sig[j] * sig[j]
+			v[i] += g*g + hjj*hjj/2
+			bias[i] += hjj / 2
+			grad[i][j] = g
+		}
+		for k := j + 1; k < 3; k++ {
+			if !(sig[k] > 0) {
+				continue
+			}
+			var pp, pm, mp, mm []float64
+			for _, c := range []struct {
+				a, b float64
+				out  *[]float64
+			}{{h, h, &pp}, {h, -h, &pm}, {-h, h, &mp}, {-h, -h, &mm}} {
+				var d [3]float64
+				d[j], d[k] = c.a, c.b
+				if *c.out, err = at(d); err != nil {
+					return nil, nil, nil, nil, err
+				}
+			}
+			for i := range n {
+				hjk := (pp[i] - pm[i] - mp[i] + mm[i]) / (4 * h * h) * sig[j] * sig[k]
+				v[i] += hjk * hjk // the two terms jk and kj of the sum
+			}
+		}
+	}
+	curv = make([]float64, n)
+	for i := range n {
+		curv[i] = v[i]
+		for j := range 3 {
+			curv[i] -= grad[i][j] * grad[i][j]
+		}
+	}
+	g2 = make([]float64, m)
+	for row := range m {
+		for k := range nr {
+			g2[row] += v[row*nr+k]
+		}
+		g2[row] /= float64(nr)
+	}
+	return g2, bias, grad, curv, nil
+}
+
+// modelShifted writes into out (m x nrhs, row-major) the model's field at
+// every reading moved by d, m, with the strengths of the separable's last
+// evaluation and without a uniform background; readings walked along a
+// path (Problem.Travel) move their path alike. The separable's positions
+// and weights are left as they were.
+func (sp *separable) modelShifted(d [3]float64, out []float64) error {
+	shift := func(pts [][3]float64) [][3]float64 {
+		if pts == nil {
+			return nil
+		}
+		s := make([][3]float64, len(pts))
+		for i, p := range pts {
+			s[i] = [3]float64{p[0] + d[0], p[1] + d[1], p[2] + d[2]}
+		}
+		return s
+	}
+	pts, lo, hi, w := sp.pts, sp.ptsLo, sp.ptsHi, sp.w
+	sp.pts, sp.ptsLo, sp.ptsHi, sp.w = shift(pts), shift(lo), shift(hi), nil
+	m, q, nr := sp.m, sp.q, sp.nrhs
+	phi := make([]float64, m*max(sp.g, 1)) // column-major, in the layout of sp.a
+	err := sp.fillPhi(phi, 1, m, sp.pos)
+	sp.pts, sp.ptsLo, sp.ptsHi, sp.w = pts, lo, hi, w
+	if err != nil {
+		return err
+	}
+	clear(out)
+	for k := range nr {
+		for c := range q {
+			p := sp.pos[c]
+			if p < 0 {
+				continue
+			}
+			cc := sp.coef[c*nr+k]
+			for row, v := range phi[p*m : (p+1)*m] {
+				out[row*nr+k] += v * cc
+			}
+		}
+	}
+	return nil
+}
+
+// positionWeights refits the candidate c with each reading axis weighted
+// by the inverse of its variance, the reading noise's and what the
+// positions' uncertainty adds (positionVariance), to a fixed point: the
+// weights s^2/(s^2 + g^2) (sqrt of them in the separable, as the robust
+// weights), s the given Problem.Sigma, or the readings' noise from their
+// differences (noiseFloor), or else the reading noise that makes the
+// residuals r of the last fit consistent with their variances, the root of
+// sum r^2/(s^2 + g^2) = DOF (noiseWithPositions). The readings are
+// corrected by the mean change the scatter makes (bias) at each round. The
+// summary's sigma follows from the weighted fit as for any weights, its
+// covariance from positionSandwich. It returns the note for the Result.
+func (f *fitter) positionWeights(c *candidate) (string, error) {
+	plan, up := f.set.PositionSigmaPlan, f.set.PositionSigmaUp
+	sp := c.sp
+	n, k := c.counts()
+	dof := n - k
+	if dof <= 0 {
+		return "", nil
+	}
+	// The reading noise: the given Problem.Sigma, else the one that makes
+	// the residuals consistent with their variances (noiseWithPositions),
+	// but no more than the readings' own from their differences
+	// (noiseFloor), which a field's curvature and a scatter of the true
+	// positions can only raise: where the positions' share dominates the
+	// residuals set the noise poorly (2 nT of noise under 200 nT of
+	// position misfit read anywhere from 0.2 to 24 nT). With the noise
+	// estimated, the weighted residuals scale the whole variance in the
+	// summary (its sigma over this one).
+	known := f.prob.Sigma > 0
+	s2 := f.prob.Sigma * f.prob.Sigma
+	if !known {
+		s2 = c.rss / float64(dof)
+	}
+	if !(s2 > 0) {
+		return "", nil
+	}
+	floor2 := f.noiseFloor()
+	floor2 *= floor2
+	// The noise may not fall below a thousandth of the plain fit's: a
+	// position sigma stated larger than the residuals allow would
+	// otherwise weigh the readings by their gradients alone.
+	s2min := 1e-6 * s2
+	m, nr := sp.m, sp.nrhs
+	w := make([]float64, m)
+	// The separable's readings may be the survey's: corrected in a copy.
+	y := sp.y
+	sp.y = slices.Clone(y)
+	sp.pd = nil
+	rounds := 0
+	for rounds < positionRounds {
+		rounds++
+		g2, bias, _, _, err := sp.positionVariance(c.x, plan, up)
+		if err != nil {
+			return "", err
+		}
+		// The readings less the mean change the scatter makes (the
+		// second-order bias of errors in the variables): the model is
+		// fitted to what a reading at the logged place reads on average.
+		moved := 0.0
+		for i, b := range bias {
+			moved = math.Max(moved, math.Abs(y[i]-b-sp.y[i]))
+			sp.y[i] = y[i] - b
+		}
+		if !known {
+			saved := sp.w
+			res, err := sp.fullResiduals(c.x)
+			sp.w = saved
+			if err != nil {
+				return "", err
+			}
+			s2, _ = noiseWithPositions(res, g2, nr, dof, s2min)
+			if floor2 > 0 && s2 > floor2 {
+				s2 = floor2
+			}
+		}
+		change := 0.0
+		for row := range m {
+			nw := s2 / (s2 + g2[row])
+			change = math.Max(change, math.Abs(nw-w[row]))
+			w[row] = nw
+		}
+		if change < 1e-3 && moved < 1e-3*math.Sqrt(s2) {
+			break
+		}
+		if sp.w == nil {
+			sp.w = make([]float64, m)
+		}
+		for row := range m {
+			sp.w[row] = math.Sqrt(w[row])
+		}
+		sp.ok = false
+		c.memo = nil // the weights changed: a summary made before no longer holds
+		lmp, _ := sp.problem()
+		r, err := levmar(lmp, c.x, f.set.lm())
+		if err != nil {
+			return "", err
+		}
+		c.x, c.res, c.rss = r.x, r, r.rss
+		c.iters += r.iter
+	}
+	// The terms at the fit, for the covariance (positionSandwich).
+	_, _, grad, curv, err := sp.positionVariance(c.x, plan, up)
+	if err != nil {
+		return "", err
+	}
+	f.pos = &positionTerms{s2: s2, grad: grad, curv: curv}
+	if err := sp.evaluate(c.x); err != nil {
+		return "", err
+	}
+	note := fmt.Sprintf("%s: %.3g m across the plan, %.3g m in height (effective variance, %d rounds)", PositionSigmaNote, plan, up, rounds)
+	// The weighted residuals against the variances taken: near 1 when the
+	// position sigmas and the noise hold.
+	if k := c.rss / float64(dof) / s2; !known && k < positionRatioLow {
+		note += fmt.Sprintf("; the readings miss the fit by %.2g times what the noise and those position sigmas explain: the position sigmas may be too large, and the uncertainties are narrowed by that ratio", math.Sqrt(k))
+	} else if !known && k > positionRatioHigh {
+		note += fmt.Sprintf("; the readings miss the fit by %.2g times what the noise and those position sigmas explain: the position sigmas may be too small, or the model misses, and the uncertainties are widened by that ratio", math.Sqrt(k))
+	}
+	return note, nil
+}
+
+// noiseWithPositions returns the reading noise variance s2 that makes
+// the residuals res (rows of nr parts) consistent with the variances
+// s2 + g2[row]: the root of sum r^2/(s2 + g2) = dof, found by bisection on
+// log s2 (the sum falls as s2 grows), and whether it lies below s2min, in
+// which case s2min is returned (the residuals are smaller than the
+// positions alone explain).
+func noiseWithPositions(res, g2 []float64, nr, dof int, s2min float64) (s2 float64, floored bool) {
+	sum := func(s2 float64) float64 {
+		var t float64
+		for row, g := range g2 {
+			for k := range nr {
+				r := res[row*nr+k]
+				t += r * r / (s2 + g)
+			}
+		}
+		return t
+	}
+	d := float64(dof)
+	if sum(s2min) <= d {
+		return s2min, true
+	}
+	hi := 0.0
+	for _, r := range res {
+		hi += r * r
+	}
+	hi /= d // sum(hi) <= dof: at s2 = RSS/dof without g2 the sum is dof
+	if !(hi > s2min) {
+		return s2min, true
+	}
+	lo := s2min
+	for range 100 {
+		mid := math.Sqrt(lo * hi)
+		if sum(mid) > d {
+			lo = mid
+		} else {
+			hi = mid
+		}
+		if hi/lo < 1+1e-6 {
+			break
+		}
+	}
+	return math.Sqrt(lo * hi), false
+}
+
+// positionTerms are what positionWeights leaves for the covariance: the
+// reading noise variance s2, nT^2, and per row (and part) the gradient's
+// shares grad and the curvature's variance curv (positionVariance).
+type positionTerms struct {
+	s2   float64
+	grad [][3]float64
+	curv []float64
+}
+
+// positionSandwich returns the covariance of the parameters of a DC fit
+// weighted by positionWeights (weights w, sqrt in the separable), taking
+// the whole covariance of each reading's three axes, not only the
+// variances the weights stand for: one position error moves all three
+// axes of a reading together, by grad.d, which diagonal weights cannot
+// express. With J the weighted Jacobian,
+//
+//	cov = A^-1 B A^-1,  A = J^T J,  B = J^T W^1/2 V W^1/2 J
+//
+// V block-diagonal by reading: s2 I + G G^T + diag(curv), G the 3 x 3
+// gradient times the sigmas (the sandwich of a weighted least-squares fit
+// whose weights are not the inverse of the data's covariance; the same
+// form as huberCovariance and serialSandwich). In review a height scatter
+// of 0.15 m over a line left depth pulls of RMS 1.47 with the diagonal
+// variances alone, 1.06 with the sandwich (100 draws). a0 is A^-1 (the covariance
+// from the weighted fit over its noise variance). nil when the fit is not
+// DC or the sizes do not match.
+func (f *fitter) positionSandwich(c *candidate, a0 *mat.SymDense) (*mat.SymDense, error) {
+	sp, pt := c.sp, f.pos
+	if pt == nil || sp.nrhs != 1 || sp.w == nil {
+		return nil, nil
+	}
+	a, rows, k, err := sp.fullJacobianCols(c.x)
+	if err != nil {
+		return nil, err
+	}
+	if rows != sp.m || rows%3 != 0 || k != a0.SymmetricDim() || len(pt.grad) != rows {
+		return nil, nil
+	}
+	w := sp.w
+	// B = sum over readings of J_i^T (W^1/2 V_i W^1/2) J_i, J_i the
+	// reading's three rows.
+	b := mat.NewSymDense(k, nil)
+	var vi [3][3]float64
+	ji := make([][3]float64, k) // J_i by column: ji[p][a]
+	for i := 0; i < rows; i += 3 {
+		for r := range 3 {
+			for q := range 3 {
+				v := 0.0
+				for j := range 3 {
+					v += pt.grad[i+r][j] * pt.grad[i+q][j]
+				}
+				if r == q {
+					v += pt.s2 + pt.curv[i+r]
+				}
+				vi[r][q] = w[i+r] * w[i+q] * v
+			}
+		}
+		for p := range k {
+			col := a[p*rows:]
+			ji[p] = [3]float64{col[i], col[i+1], col[i+2]}
+		}
+		for p := range k {
+			var t [3]float64 // (V_i J_i)[:, p]
+			for r := range 3 {
+				t[r] = vi[r][0]*ji[p][0] + vi[r][1]*ji[p][1] + vi[r][2]*ji[p][2]
+			}
+			for q := 0; q <= p; q++ {
+				b.SetSym(q, p, b.At(q, p)+ji[q][0]*t[0]+ji[q][1]*t[1]+ji[q][2]*t[2])
+			}
+		}
+	}
+	var tmp, out mat.Dense
+	tmp.Mul(a0, b)
+	out.Mul(&tmp, a0)
+	cov := mat.NewSymDense(k, nil)
+	for p := range k {
+		for q := p; q < k; q++ {
+			cov.SetSym(p, q, (out.At(p, q)+out.At(q, p))/2)
+		}
+	}
+	return cov, sp.evaluate(c.x)
+}
