@@ -93,8 +93,8 @@ func wrapDeg(a float64) float64 {
 }
 
 // returnPhaseTolDeg is how far from anti-phase to conductor 1 a further
-// conductor's phase may lie, beyond three of its sigmas, for it to be read
-// as a return path of conductor 1's current. A return along a pipe, a
+// conductor's phase may lie, with three of its sigmas added (phaseWithin),
+// for it to be read as a return path of conductor 1's current. A return along a pipe, a
 // sheath or a parallel cable is driven by conductor 1's own current: it
 // is anti-phase but for the difference in impedance angle (X/R) between
 // it and the other return paths (remote earth), which for metallic paths
