@@ -3,6 +3,8 @@ package inverse
 import (
 	"math"
 	"math/rand/v2"
+	"reflect"
+	"slices"
 	"strings"
 	"testing"
 )
@@ -133,6 +135,85 @@ func TestCurrentRampTwoLinesStayTwo(t *testing.T) {
 		}
 		if len(res.Sources) != 2 {
 			t.Errorf("traverse %d: %d lines, want 2", tr, len(res.Sources))
+		}
+	}
+}
+
+// swingLines writes the DC readings of one traverse walked north across the
+// lines ls running east, 12 m in 49 readings 0.4 s apart, with noise nT of
+// noise on each axis and each line's current times swing(t): the field is
+// the infinite line's of DOMAIN.md "Forward models", as in rampLines.
+func swingLines(ls []rampLine, swing func(t float64) float64, noise float64, reverse bool, rng *rand.Rand) *Problem {
+	const mu0 = 1.25663706127e-6
+	p := &Problem{}
+	for k := 0; k <= 48; k++ {
+		t := 0.4 * float64(k)
+		n := -6 + 0.25*float64(k)
+		if reverse {
+			n = -n
+		}
+		b := [3]float64{20000 + noise*rng.NormFloat64(), 5000 + noise*rng.NormFloat64(), -40000 + noise*rng.NormFloat64()}
+		for _, l := range ls {
+			rn, ru := n-l.n, 0.3-l.up
+			k := mu0 * l.i * swing(t) / (2 * math.Pi) / (rn*rn + ru*ru) * 1e9
+			b[1] -= k * ru
+			b[2] += k * rn
+		}
+		p.Points = append(p.Points, [3]float64{0, n, 0.3})
+		p.Fields = append(p.Fields, b)
+		p.Times = append(p.Times, t)
+	}
+	return p
+}
+
+// TestCurrentRampNotPastTheNoise: two lines (100 A 0.9 m below ground
+// level and 40 A 1.5 m down, 2.5 m aside) whose currents swing 30 % over
+// 15 s, faster than a ramp and its curvature follow. Before, the automatic
+// count let one line with a ramp displace the two-line fit although the fit
+// with the ramp still missed the readings by hundreds of times their noise
+// floor: one line of 137 ± 121 A "changing about 180 %" (the reported fit
+// missing by 698 times), and an answer that the screen in front of the
+// ramp fits (rampMayPass) did not share (8 of 1200 probe traverses; found
+// in review). A ramp now displaces several lines only where the fit with it
+// meets the noise by linesMiss's test (rampAtNoise): no ramp is reported
+// here, screen or no screen. The fit stays wrong (the swing is in no
+// model): an unresolved go-and-return pair whose currents, hundreds of
+// amperes, carry no sigma (Identifiable.Current false, Result.Pairs), and
+// a note that the lines miss the readings.
+func TestCurrentRampNotPastTheNoise(t *testing.T) {
+	defer func() { rampScreenOn = true }()
+	sw := func(t float64) float64 { return 1 + 0.3*math.Sin(2*math.Pi*t/15+0.7) }
+	for _, noise := range []float64{2, 20} {
+		for seed := range 3 {
+			mk := func() *Problem {
+				rng := rand.New(rand.NewPCG(uint64(seed+1), 335))
+				return swingLines([]rampLine{{0, -0.9, 100}, {2.5, -1.5, 40}}, sw, noise, seed%2 == 1, rng)
+			}
+			var res [2]*Result
+			for k, on := range []bool{false, true} {
+				rampScreenOn = on
+				r, err := FitLines(mk(), nil)
+				if err != nil {
+					t.Fatalf("noise %g seed %d: %v", noise, seed, err)
+				}
+				res[k] = r
+			}
+			r := res[0]
+			if r.CurrentRamp != 0 || slices.ContainsFunc(r.Notes, func(n string) bool { return strings.HasPrefix(n, CurrentRampNote) }) {
+				t.Errorf("noise %g seed %d: a ramp of %.3g ± %.3g displaces the lines, %d line(s) reported, first %.4g ± %.3g A",
+					noise, seed, r.CurrentRamp, r.CurrentRampSigma, len(r.Sources), r.Sources[0].Current, r.Sources[0].CurrentSigma)
+			}
+			if !reflect.DeepEqual(res[0], res[1]) {
+				t.Errorf("noise %g seed %d: the screen changes the answer", noise, seed)
+			}
+			for i, s := range r.Sources {
+				if s.Kind != "line" || s.Identifiable.Current && s.CurrentSigma > 0 && math.Abs(s.Current) < 1e4 {
+					continue
+				}
+				if s.Identifiable.Current || len(r.Pairs) == 0 {
+					t.Errorf("noise %g seed %d: line %d carries %.4g ± %.3g A, identifiable %v, in no unresolved pair", noise, seed, i+1, s.Current, s.CurrentSigma, s.Identifiable.Current)
+				}
+			}
 		}
 	}
 }

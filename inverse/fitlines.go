@@ -592,6 +592,14 @@ func (f *fitter) run() (*Result, error) {
 			ceiling = accepted[1]
 		}
 		r, rc := f.findRamp(c1, ceiling)
+		// A ramp displaces a fit of several lines only when the fit with
+		// it meets the noise (rampAtNoise): one that still misses explains
+		// no more than the lines do. On one line a ramp changes no line
+		// and widens the current's sigma, and a current wandering in time
+		// (a random walk, which no ramp follows to the noise) keeps it.
+		if r != nil && len(best.sp.geom) > 1 && !f.rampAtNoise(r) {
+			r = nil
+		}
 		if r != nil {
 			if kb := len(best.sp.geom); kb == 1 && rc < accepted[1] || kb > 1 && rc < bestScore {
 				ramp = r

@@ -913,10 +913,13 @@ func circuitOf(f *Fit, ac bool) (p *inverse.PairEstimate, strict, usable bool) {
 	return p, math.Abs(p.NetCurrent) <= 0.5*math.Max(math.Abs(s0.Current), math.Abs(o.Current)), true
 }
 
-// returnShareClause words, for conductor 1's return path (trackReturn,
-// chosen by addTrackPhases: near anti-phase, the best such partner, not
-// of a three-phase set), the share of conductor 1's current it returns and
-// the net current the two leave to return by other paths; for the later
+// returnShareClause words, for a return path of conductor 1's current
+// (trackReturn, chosen by addTrackPhases: within 30° of anti-phase at
+// three sigmas, not of a three-phase set), the share of conductor 1's
+// current it returns and the net current left to return by other paths
+// (with several returns, their phasor sum with conductor 1's, on the last
+// of them; the others point to it); for a conductor not read as a return
+// but within 45° of anti-phase, why not; for the later
 // member of a three-phase set (polyphaseSet), the set's residual, worded
 // as holding only if the three are one circuit; "" otherwise. The
 // go-and-return wording of circuitOf covers only a pair within its depth
@@ -930,11 +933,45 @@ func returnShareClause(t *Track) string {
 		return fmt.Sprintf("; conductors %d, %d and %d have phases about 120° apart, as the three phases of one three-phase circuit have: if they are one circuit, its residual (the phasor sum of the three currents, what returns by a neutral, earth or conductors outside the survey) is %s A; separate circuits on those phases give the sum no meaning",
 			s[0], s[1], s[2], pm(*t.PolyphaseResidualA, *t.PolyphaseResidualSigmaA))
 	}
-	if t.ReturnShare == nil || t.ReturnShareSigma == nil || t.NetToEarthA == nil || t.NetToEarthSigmaA == nil {
+	if t.ReturnOffDeg != nil && t.ReturnOffSigmaDeg != nil {
+		return fmt.Sprintf("; not read as a return: %s° from anti-phase (a return through an inductive path can be so far off)", pm(*t.ReturnOffDeg, *t.ReturnOffSigmaDeg))
+	}
+	if t.ReturnShare == nil || t.ReturnShareSigma == nil {
 		return ""
 	}
-	return fmt.Sprintf("; it carries back %s%% of conductor 1's current (its current times the cosine of its angle from anti-phase, over conductor 1's), and the two together leave a net %s A (their phasor sum) that returns by other paths, such as remote earth or conductors outside the survey",
-		pm(100**t.ReturnShare, 100**t.ReturnShareSigma), pm(*t.NetToEarthA, *t.NetToEarthSigmaA))
+	share := fmt.Sprintf("; it carries back %s%% of conductor 1's current (its current times the cosine of its angle from anti-phase, over conductor 1's)", pm(100**t.ReturnShare, 100**t.ReturnShareSigma))
+	if len(t.ReturnSet) == 0 {
+		if t.NetToEarthA == nil || t.NetToEarthSigmaA == nil {
+			return ""
+		}
+		return share + fmt.Sprintf(", and the two together leave a net %s A (their phasor sum) that returns by other paths, such as remote earth or conductors outside the survey", pm(*t.NetToEarthA, *t.NetToEarthSigmaA))
+	}
+	set := numberList(t.ReturnSet)
+	last := t.ReturnSet[len(t.ReturnSet)-1]
+	switch {
+	case t.NetToEarthA != nil && t.NetToEarthSigmaA != nil:
+		return share + fmt.Sprintf("; conductors %s (conductor 1 and the conductors read as its returns) together leave a net %s A (the phasor sum of their currents) that returns by other paths, such as remote earth or conductors outside the survey", set, pm(*t.NetToEarthA, *t.NetToEarthSigmaA))
+	case t.Number == last:
+		return share + fmt.Sprintf("; conductors %s are read as conductor 1 and its returns, but no group has all of them, so the net they leave to other paths is not given", set)
+	default:
+		return share + fmt.Sprintf(", one of the returns read beside conductor 1 (conductors %s: the net they leave to other paths is given with conductor %d)", set, last)
+	}
+}
+
+// numberList words conductor numbers, "1, 2 and 3".
+func numberList(ns []int) string {
+	var b strings.Builder
+	for k, n := range ns {
+		switch {
+		case k == 0:
+		case k == len(ns)-1:
+			b.WriteString(" and ")
+		default:
+			b.WriteString(", ")
+		}
+		fmt.Fprintf(&b, "%d", n)
+	}
+	return b.String()
 }
 
 // circuitPartner is the index of the line that the route's conductor of

@@ -682,20 +682,33 @@ type Track struct {
 	// (trackPhase). Nil for DC or when no group has both phases.
 	PhaseFromConductor1      *float64 `json:"phase_from_conductor_1_deg,omitempty"`
 	PhaseFromConductor1Sigma *float64 `json:"phase_from_conductor_1_sigma_deg,omitempty"`
-	// ReturnShare is, for the AC conductor read as conductor 1's return
-	// path (its phase within 30° of anti-phase beyond three sigmas, not
-	// one of a three-phase set, and of such the one leaving the least
-	// net current: addTrackPhases), the share of
+	// ReturnShare is, for each AC conductor read as a return path of
+	// conductor 1's current (its phase within 30° of anti-phase at three
+	// sigmas, not one of a three-phase set: addTrackPhases), the share of
 	// conductor 1's current it carries back, |I| cos(its angle from
-	// anti-phase) / |I1|, and NetToEarthA the net current the two carry
-	// between them, the magnitude of their phasor sum, A: what returns by
-	// other paths (remote earth, conductors outside the survey). Each with
-	// its one-sigma, weighted means over the groups trackPhase uses
-	// (trackReturn). Nil otherwise.
+	// anti-phase) / |I1|, and NetToEarthA the net current left to return
+	// by other paths (remote earth, conductors outside the survey), the
+	// magnitude of the phasor sum of conductor 1's current and the
+	// returns': with one return, on it; with several (ReturnSet), on the
+	// last of them only, summed over all. Each with its one-sigma, weighted
+	// means over the groups where all were used (trackReturn, phasorSum),
+	// first order in the stations' sigmas, their correlations in the fit
+	// left out. Nil otherwise.
 	ReturnShare      *float64 `json:"return_share,omitempty"`
 	ReturnShareSigma *float64 `json:"return_share_sigma,omitempty"`
 	NetToEarthA      *float64 `json:"net_to_earth_a,omitempty"`
 	NetToEarthSigmaA *float64 `json:"net_to_earth_sigma_a,omitempty"`
+	// ReturnSet is, where more than one conductor is read as a return of
+	// conductor 1's current, the numbers of conductor 1 and all of them:
+	// the conductors whose phasor sum NetToEarthA is. Nil otherwise.
+	ReturnSet []int `json:"return_set,omitempty"`
+	// ReturnOffDeg is, for an AC conductor not read as a return whose
+	// phase lies within 45° of anti-phase at three sigmas (past the 30°
+	// a return share needs, or too uncertain to be inside it), its angle
+	// from anti-phase, degrees, and its sigma: the summary says why it is
+	// given no share. Nil otherwise.
+	ReturnOffDeg      *float64 `json:"return_off_anti_phase_deg,omitempty"`
+	ReturnOffSigmaDeg *float64 `json:"return_off_anti_phase_sigma_deg,omitempty"`
 	// PolyphaseSet is, on the later of two further AC conductors whose
 	// phases from conductor 1 lie near +120° and -120° (polyphaseSet), the
 	// numbers of the three conductors, as the phases of one three-phase

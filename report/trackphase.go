@@ -93,8 +93,8 @@ func wrapDeg(a float64) float64 {
 }
 
 // returnPhaseTolDeg is how far from anti-phase to conductor 1 a further
-// conductor's phase may lie, beyond three of its sigmas, for it to be read
-// as a return path of conductor 1's current. A return along a pipe, a
+// conductor's phase may lie, with three of its sigmas added (phaseWithin),
+// for it to be read as a return path of conductor 1's current. A return along a pipe, a
 // sheath or a parallel cable is driven by conductor 1's own current: it
 // is anti-phase but for the difference in impedance angle (X/R) between
 // it and the other return paths (remote earth), which for metallic paths
@@ -122,22 +122,43 @@ func phaseNear(p, sg, want, tol float64) bool {
 	return 3*sg < tol && math.Abs(wrapDeg(p-want)) <= tol+3*sg
 }
 
+// phaseWithin is whether phase p (sigma sg), degrees, lies within tol of
+// want at three sigmas: |p - want| + 3 sg <= tol. A return share asserts
+// the conductor is conductor 1's return, so its phase must be inside the
+// tolerance at three sigmas, not merely not excluded from it: phaseNear's
+// tol + 3 sg let a phase of 142.9 ± 2.7°, a separate feeder 40° off
+// anti-phase, carry back "8.9 %" (found in review).
+func phaseWithin(p, sg, want, tol float64) bool {
+	return math.Abs(wrapDeg(p-want))+3*sg <= tol
+}
+
+// returnWordTolDeg is how far from anti-phase, at three sigmas, a further
+// conductor's phase may lie for its summary to say why it is not read as a
+// return (ReturnOffDeg): past returnPhaseTolDeg, or not within it at three
+// sigmas, yet near enough that a return through an inductive path may lie
+// there; beyond it nothing is said.
+const returnWordTolDeg = 45
+
 // addTrackPhases sets each further conductor's PhaseFromConductor1
 // (trackPhase); for the two further conductors that with conductor 1 make
 // a three-phase set (polyphaseSet), the set's residual on the later of
-// the two; and for conductor 1's return path, its ReturnShare and
-// NetToEarthA (trackReturn). A return path is a conductor outside any such
-// set whose phase is near anti-phase (returnPhaseTolDeg, phaseNear) and,
-// of those, the one that leaves the least net current (the best partner):
-// before, any conductor within 90° of anti-phase was given a share, so a
-// three-phase partner at 120° and a separate LV feeder at 135° were said
-// to leave tens of amperes to remote earth (found in review).
+// the two; and for conductor 1's return paths, each one's ReturnShare,
+// and the NetToEarthA they leave (trackReturn; phasorSum over all of them
+// where there are several, ReturnSet). A return path is a conductor
+// outside any such set whose phase lies within returnPhaseTolDeg of
+// anti-phase at three sigmas (phaseWithin); one not so read but within
+// returnWordTolDeg gets ReturnOffDeg, for the summary to say why. Before,
+// only the best such partner got a share, and its pairwise net counted
+// a second return's current as gone to remote earth (12.44 A said for
+// 6.45 A), and a phase 40° off with a sigma of 2.7° passed (found in
+// review).
 func (d *Document) addTrackPhases() {
 	for i := range d.Conductors {
 		t := &d.Conductors[i]
 		t.PhaseFromConductor1, t.PhaseFromConductor1Sigma = nil, nil
 		t.ReturnShare, t.ReturnShareSigma, t.NetToEarthA, t.NetToEarthSigmaA = nil, nil, nil, nil
 		t.PolyphaseSet, t.PolyphaseResidualA, t.PolyphaseResidualSigmaA = nil, nil, nil
+		t.ReturnSet, t.ReturnOffDeg, t.ReturnOffSigmaDeg = nil, nil, nil
 		if p, sg, _, ok := trackPhase(d, t); ok {
 			t.PhaseFromConductor1, t.PhaseFromConductor1Sigma = &p, &sg
 		}
@@ -155,21 +176,53 @@ func (d *Document) addTrackPhases() {
 			last.PolyphaseSet, last.PolyphaseResidualA, last.PolyphaseResidualSigmaA = set, &r, &sr
 		}
 	}
-	best, bestNet := -1, math.Inf(1)
-	var bsh, bssh, bnet, bsnet float64
+	var rets []int
 	for i := range d.Conductors {
 		t := &d.Conductors[i]
-		if inSet[i] || t.PhaseFromConductor1 == nil || !phaseNear(*t.PhaseFromConductor1, *t.PhaseFromConductor1Sigma, 180, returnPhaseTolDeg) {
+		if inSet[i] || t.PhaseFromConductor1 == nil {
 			continue
 		}
-		if sh, ssh, net, snet, ok := trackReturn(d, t); ok && net < bestNet {
-			best, bestNet = i, net
-			bsh, bssh, bnet, bsnet = sh, ssh, net, snet
+		p, sg := *t.PhaseFromConductor1, *t.PhaseFromConductor1Sigma
+		off := math.Abs(wrapDeg(p - 180))
+		if phaseWithin(p, sg, 180, returnPhaseTolDeg) {
+			if sh, ssh, net, snet, ok := trackReturn(d, t); ok {
+				t.ReturnShare, t.ReturnShareSigma = &sh, &ssh
+				t.NetToEarthA, t.NetToEarthSigmaA = &net, &snet
+				rets = append(rets, i)
+			}
+			continue
+		}
+		if off-3*sg <= returnWordTolDeg && !t.Route.PairNet && d.Route != nil && !d.Route.PairNet {
+			o, so := off, sg
+			t.ReturnOffDeg, t.ReturnOffSigmaDeg = &o, &so
 		}
 	}
-	if best >= 0 {
-		t := &d.Conductors[best]
-		t.ReturnShare, t.ReturnShareSigma, t.NetToEarthA, t.NetToEarthSigmaA = &bsh, &bssh, &bnet, &bsnet
+	if len(rets) < 2 {
+		return
+	}
+	// Several returns: each keeps its share of conductor 1's current, and
+	// the net that returns by other paths is the phasor sum of conductor 1's
+	// current and all of theirs, given on the last of them; the pairwise
+	// nets would each count the other returns' current as gone to earth.
+	ts := make([]*Track, len(rets))
+	set := []int{1}
+	for k, i := range rets {
+		ts[k] = &d.Conductors[i]
+		set = append(set, d.Conductors[i].Number)
+		ts[k].NetToEarthA, ts[k].NetToEarthSigmaA = nil, nil
+	}
+	sort.Ints(set)
+	last := ts[0]
+	for _, t := range ts {
+		if t.Number > last.Number {
+			last = t
+		}
+	}
+	for _, t := range ts {
+		t.ReturnSet = set
+	}
+	if r, sr, ok := phasorSum(d, ts...); ok {
+		last.NetToEarthA, last.NetToEarthSigmaA = &r, &sr
 	}
 }
 
@@ -209,6 +262,15 @@ func (d *Document) polyphaseSet() (a, b int, ok bool) {
 // Birge ratio (birgeMean). ok is false where no group has all three, or
 // conductor 1 is a pair read as its net.
 func polyphaseResidual(d *Document, ta, tb *Track) (res, sigma float64, ok bool) {
+	return phasorSum(d, ta, tb)
+}
+
+// phasorSum is the magnitude of the phasor sum of conductor 1's current
+// and further conductors ts' currents, |I1 + ΣIk|, A, and its sigma, as
+// polyphaseResidual describes: over the groups where all were used with
+// phases, first order in the currents' and phases' sigmas with their
+// correlations in the fit left out, Birge-widened inverse-variance mean.
+func phasorSum(d *Document, ts ...*Track) (res, sigma float64, ok bool) {
 	if d.Route == nil || d.Route.PairNet {
 		return 0, 0, false
 	}
@@ -227,24 +289,35 @@ func polyphaseResidual(d *Document, ta, tb *Track) (res, sigma float64, ok bool)
 		}
 		return m
 	}
-	sa, sb := at(ta), at(tb)
+	others := make([]map[string]Station, len(ts))
+	for k, t := range ts {
+		others[k] = at(t)
+	}
+	type ph struct{ i, si, p, sp float64 }
 	var rs, ws []float64
 	for _, m := range d.Route.Stations {
 		if _, found := main[m.Key]; !found {
 			continue
 		}
-		x, okx := sa[m.Key]
-		y, oky := sb[m.Key]
-		if !okx || !oky {
+		ps := []ph{{math.Abs(m.Current), m.CurrentSigma, 0, *m.PhaseSigma}}
+		all := true
+		for _, o := range others {
+			x, found := o[m.Key]
+			if !found {
+				all = false
+				break
+			}
+			pa, p1, ok := alongPhases(x, m)
+			if !ok {
+				all = false
+				break
+			}
+			ps[0].p = p1
+			ps = append(ps, ph{math.Abs(x.Current), x.CurrentSigma, pa, *x.PhaseSigma})
+		}
+		if !all {
 			continue
 		}
-		pa, p1, ok1 := alongPhases(x, m)
-		pb, _, ok2 := alongPhases(y, m)
-		if !ok1 || !ok2 {
-			continue
-		}
-		type ph struct{ i, si, p, sp float64 }
-		ps := []ph{{math.Abs(m.Current), m.CurrentSigma, p1, *m.PhaseSigma}, {math.Abs(x.Current), x.CurrentSigma, pa, *x.PhaseSigma}, {math.Abs(y.Current), y.CurrentSigma, pb, *y.PhaseSigma}}
 		var re, im float64
 		for _, q := range ps {
 			re += q.i * math.Cos(q.p*math.Pi/180)
