@@ -8,10 +8,10 @@ import (
 	"runtime"
 	"runtime/debug"
 	"strconv"
-	"strings"
 	"sync"
-	"syscall"
 	"testing"
+
+	"undercurrent/ingest/ingesttest"
 )
 
 // Benchmarks read a generated canonical log of eight numeric columns
@@ -122,24 +122,9 @@ func resetPeakRSS() {
 	os.WriteFile("/proc/self/clear_refs", []byte("5"), 0)
 }
 
-// peakRSSMB is the high-water mark of resident memory (VmHWM) in MB, or
-// getrusage's maximum when /proc is not available.
-func peakRSSMB() float64 {
-	if b, err := os.ReadFile("/proc/self/status"); err == nil {
-		for _, l := range strings.Split(string(b), "\n") {
-			if f := strings.Fields(l); len(f) >= 2 && f[0] == "VmHWM:" {
-				if kb, err := strconv.ParseFloat(f[1], 64); err == nil {
-					return kb / 1024
-				}
-			}
-		}
-	}
-	var ru syscall.Rusage
-	if err := syscall.Getrusage(syscall.RUSAGE_SELF, &ru); err != nil {
-		return 0
-	}
-	return float64(ru.Maxrss) / 1024 // kilobytes on Linux
-}
+// peakRSSMB is the process's high-water mark of resident memory in MB
+// (ingesttest.PeakRSS: VmHWM on Linux, the peak working set on Windows).
+func peakRSSMB() float64 { return float64(ingesttest.PeakRSS()) / (1 << 20) }
 
 func benchRead(b *testing.B, format string, opts ...Option) {
 	p := benchLogs(b)[format]

@@ -4,7 +4,6 @@ import (
 	"io"
 	"os"
 	"path/filepath"
-	"syscall"
 	"testing"
 
 	"github.com/apache/arrow-go/v18/arrow"
@@ -32,7 +31,7 @@ func fifoOf(t *testing.T, file string) string {
 func fifoFed(t *testing.T, feed func(w io.Writer)) string {
 	t.Helper()
 	p := filepath.Join(t.TempDir(), "log.fifo")
-	if err := syscall.Mkfifo(p, 0o600); err != nil {
+	if err := mkfifo(p); err != nil {
 		t.Skipf("no named pipes here: %v", err)
 	}
 	done := make(chan struct{})

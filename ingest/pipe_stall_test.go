@@ -7,7 +7,6 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
-	"syscall"
 	"testing"
 	"time"
 )
@@ -36,7 +35,7 @@ func TestStalledPipeGivesWayToContext(t *testing.T) {
 	} {
 		t.Run(c.name, func(t *testing.T) {
 			fifo := filepath.Join(dir, fmt.Sprintf("kestrel-moor-logger-%d.csv", i))
-			if err := syscall.Mkfifo(fifo, 0o600); err != nil {
+			if err := mkfifo(fifo); err != nil {
 				t.Skipf("no named pipes here: %v", err)
 			}
 			ctx, cancel := context.WithCancel(context.Background())

@@ -3,10 +3,10 @@ package report
 import (
 	"fmt"
 	"path/filepath"
-	"syscall"
 	"testing"
 	"time"
 
+	"undercurrent/ingest/ingesttest"
 	"undercurrent/inverse"
 	"undercurrent/inverse/route"
 	"undercurrent/inverse/simulate"
@@ -31,11 +31,11 @@ func BenchmarkObjectTails(b *testing.B) {
 			for range b.N {
 				b.StopTimer()
 				run := append([]Fit(nil), fits...)
-				c0 := cpuTime()
+				c0 := ingesttest.CPUTime()
 				b.StartTimer()
 				objectTails(run, kept, nil)
 				b.StopTimer()
-				cpu += cpuTime() - c0
+				cpu += ingesttest.CPUTime() - c0
 				b.StartTimer()
 			}
 			// The process's CPU time: steadier than the wall time on a
@@ -106,13 +106,4 @@ func drumRoute(b *testing.B, n int) ([]Fit, []accepted) {
 		kept = append(kept, accepted{fit: i, ds: &dipoleSearch{obj: o, moment: mom}})
 	}
 	return fits, kept
-}
-
-// cpuTime returns the CPU time (user and system) the process has used.
-func cpuTime() time.Duration {
-	var ru syscall.Rusage
-	if err := syscall.Getrusage(syscall.RUSAGE_SELF, &ru); err != nil {
-		return 0
-	}
-	return time.Duration(ru.Utime.Nano() + ru.Stime.Nano())
 }

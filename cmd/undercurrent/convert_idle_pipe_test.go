@@ -21,7 +21,7 @@ import (
 func TestConvertStopsOnIdlePipe(t *testing.T) {
 	dir := t.TempDir()
 	fifo := filepath.Join(dir, "harrow-fen-logger.csv")
-	if err := syscall.Mkfifo(fifo, 0o600); err != nil {
+	if err := mkfifo(fifo); err != nil {
 		t.Skipf("no named pipes here: %v", err)
 	}
 	out := filepath.Join(dir, "harrow-fen.arrows")

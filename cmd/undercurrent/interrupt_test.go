@@ -134,6 +134,7 @@ func TestSignalHelperProcess(t *testing.T) {
 // SIGINT gives exit status 130 and SIGTERM 143 (128 plus the signal's
 // number, POSIX "Exit Status for Commands"), with "interrupted" on stderr.
 func TestSignalExitStatus(t *testing.T) {
+	needSignals(t)
 	for _, tc := range []struct {
 		sig  syscall.Signal
 		code int

@@ -6,7 +6,6 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
-	"syscall"
 	"testing"
 )
 
@@ -18,7 +17,7 @@ import (
 func TestPipeInput(t *testing.T) {
 	dir := t.TempDir()
 	fifo := filepath.Join(dir, "log.fifo")
-	if err := syscall.Mkfifo(fifo, 0o600); err != nil {
+	if err := mkfifo(fifo); err != nil {
 		t.Skipf("no named pipes here: %v", err)
 	}
 	code, _, stderr := cli(t, "locate", fifo)

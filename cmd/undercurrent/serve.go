@@ -69,9 +69,12 @@ within the lease time when a worker dies. SIGTERM or Ctrl-C drains: complete
 windows are published and leases handed back before exit. Serve does not
 reload: SIGHUP is logged ("no reload: restart serve to apply site-file
 changes") and serve carries on with the settings it started with; an
-edit to the site file while serve runs is logged once at WARN. The start
-line logs the version (and VCS revision), the site file's path and a
-digest of it; /metrics has uc_build_info{version,revision}.
+edit to the site file while serve runs is logged once at WARN. Windows has
+no SIGTERM nor SIGHUP to send: there Ctrl-C or Ctrl-Break drains, and
+closing the console window starts the drain but Windows ends the process
+a few seconds later, finished or not. The start line logs the version
+(and VCS revision), the site file's path and a digest of it; /metrics has
+uc_build_info{version,revision}.
 
 HTTP API (loopback by default): /healthz, /readyz, /metrics,
 /api/v1/assets, /api/v1/assets/ASSET, /api/v1/assets/ASSET/latest,

@@ -16,6 +16,7 @@ import (
 // the version, the site file's path and its digest (before: the site's
 // name and the number of assets only).
 func TestServeSIGHUPNoReload(t *testing.T) {
+	needSignals(t) // SIGHUP, then SIGTERM
 	if testing.Short() {
 		t.Skip("starts a broker and a serve process")
 	}

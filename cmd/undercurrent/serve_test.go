@@ -224,6 +224,7 @@ func pollUntil(t *testing.T, timeout time.Duration, what string, cond func() boo
 // data (inverse.FitStrengths on the window means). SIGTERM then drains the
 // survivor, which hands its lease back.
 func TestServeSurvivesSIGKILL(t *testing.T) {
+	needSignals(t) // the survivor is drained by SIGTERM
 	if testing.Short() {
 		t.Skip("starts a broker and three processes")
 	}

@@ -4,7 +4,6 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
-	"syscall"
 )
 
 // The embedded server's store limit. nats-server sizes a store without a
@@ -16,14 +15,10 @@ import (
 // GrowStore raises it when disk space has been freed.
 
 // diskFree returns the bytes free to an unprivileged user on the file
-// system holding dir (a variable so that tests can place it).
-var diskFree = func(dir string) (int64, error) {
-	var fs syscall.Statfs_t
-	if err := syscall.Statfs(dir, &fs); err != nil {
-		return 0, err
-	}
-	return int64(fs.Bavail) * int64(fs.Bsize), nil
-}
+// system holding dir (statfs's f_bavail on Unix systems, diskfree_unix.go;
+// GetDiskFreeSpaceEx's bytes free to the caller on Windows,
+// diskfree_windows.go). It is a variable so that tests can place it.
+var diskFree = freeBytes
 
 // dirBytes returns the bytes of the regular files under dir.
 func dirBytes(dir string) int64 {

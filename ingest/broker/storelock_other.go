@@ -1,8 +1,9 @@
-//go:build !unix
+//go:build !unix && !windows
 
 package broker
 
 import "os"
 
-// lockStore does not lock the store where flock is not available.
-func lockStore(dir string) (*os.File, error) { return nil, nil }
+// tryLock has no file lock to take on this system (no flock nor
+// LockFileEx): the store is not guarded against a second broker.
+func tryLock(f *os.File) (busy bool, err error) { return false, nil }

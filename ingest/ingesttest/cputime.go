@@ -1,20 +1,22 @@
 package ingesttest
 
 import (
-	"syscall"
 	"testing"
 	"time"
 )
 
 // CPUTime returns the CPU time (user and system) the process has used so
-// far, or 0 when it cannot be read.
-func CPUTime() time.Duration {
-	var ru syscall.Rusage
-	if err := syscall.Getrusage(syscall.RUSAGE_SELF, &ru); err != nil {
-		return 0
-	}
-	return time.Duration(ru.Utime.Nano() + ru.Stime.Nano())
-}
+// far, or 0 when it cannot be read. It is getrusage(RUSAGE_SELF) on Unix
+// systems and GetProcessTimes on Windows (cputime_unix.go,
+// cputime_windows.go); elsewhere it is 0.
+func CPUTime() time.Duration { return cpuTime() }
+
+// PeakRSS returns the process's high-water mark of resident memory, bytes,
+// or 0 when it cannot be read: VmHWM from /proc/self/status on Linux (which
+// a write of "5" to /proc/self/clear_refs resets), else getrusage's
+// ru_maxrss (kilobytes on Linux and the BSDs, bytes on macOS), and the peak
+// working set (GetProcessMemoryInfo) on Windows.
+func PeakRSS() int64 { return peakRSS() }
 
 // ReportCPU adds the process's CPU time per operation since start (a
 // CPUTime taken before the loop) as the metric "cpu-ns/op". On a loaded
