@@ -560,6 +560,17 @@ func sharedMisfit(fits []Fit, bs *BuildSettings, rs *route.Settings) string {
 		return fmt.Sprintf("%s, %.3g times the %.3g nT noise the readings themselves show and %.2g%% of the signal: the fitted lines do not describe this field. Readings held at one value were kept in the fits (%s; see the warning on them): if that value is the magnetometer's range they are not the field and are the likeliest cause, so give it with --range-nt to leave them out and locate again; only then suspect conductors closer together than the fit can part or an object. Positions, depths and currents may be wrong although the fits, measured against one another, may pass as sound",
 			lead, m/nm, nm, 100*median(frac), bs.KeptRails)
 	}
+	if a, k := aboveExplains(fits, misses); a != nil {
+		// Before the axes: a line above the sensors misfits as a turned
+		// axis does, and following the axes' advice fitted its mirror
+		// image below ground as sound (found in review).
+		which := "every one of them"
+		if k < bad {
+			which = fmt.Sprintf("%d of them", k)
+		}
+		return fmt.Sprintf("%s, %.3g times the %.3g nT noise the readings themselves show and %.2g%% of the signal: no line below the sensors describes this field, so positions, depths and currents of lines below mean nothing here. A conductor above the sensors explains %s; at %s, %s",
+			lead, m/nm, nm, 100*median(frac), which, a.key, a.words(a.ac))
+	}
 	if sc, pm := jitterExplains(misses); pm > 0 {
 		return fmt.Sprintf("%s, %.3g times the %.3g nT noise the readings themselves show and %.2g%% of the signal: the positions scatter from reading to reading by %.2g m, which alone makes about %.3g nT of misfit, most on the anomaly's flanks: scattered positions (satellite positioning jitter) are the likely cause, rather than conductors closer together than the fit can part; they flatten and widen the fitted anomaly, so depths read deep and currents high although the fits, measured against one another, may pass as sound; smooth the track or use corrected positions",
 			lead, m/nm, nm, 100*median(frac), sc, pm)
