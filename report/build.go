@@ -1073,7 +1073,12 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute boo
 	if g.OK && !weak && near == "" && above == "" && pair == nil {
 		lost, lostFail = lostLineProblem(res)
 	}
-	if weak || near != "" || aboveFail || held != "" || lostFail {
+	// The conductor's line stood up to the dip's bound (dipAtBound).
+	var steep string
+	if g.OK && !weak && near == "" && above == "" && len(res.Sources) > 0 {
+		steep = dipAtBound(&res.Sources[0])
+	}
+	if weak || near != "" || aboveFail || held != "" || lostFail || steep != "" {
 		g.OK = false
 	}
 	switch {
@@ -1093,6 +1098,8 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute boo
 		g.Problem = "the fit failed: " + above
 	case lostFail:
 		g.Problem = "the fit failed: " + lost
+	case steep != "":
+		g.Problem = "the fit failed: " + steep
 	case !g.OK:
 		g.Problem = "the fit did not converge (" + g.Status + ")"
 	case f.Problem != nil && f.Problem.Sigma == 0 && res.DOF < MinDOF:
