@@ -71,3 +71,31 @@ func TestOverheadLineMisfitNotSound(t *testing.T) {
 		}
 	}
 }
+
+// A stronger or nearer overhead line over the cable makes the misfit large
+// enough for the warning to name the field's axes first; it names a
+// conductor above the sensors there too, and says not to turn an axis to
+// fit it. Six traverses as above with the 50 A line 5 m up (invented
+// fixtures, Biot-Savart readings). Before, the warning sent the user to
+// the axes alone (review: 50 A 5 m above a 25 A cable, 237 times the noise).
+func TestOverheadLineNearNamedBesideAxes(t *testing.T) {
+	const noise = 2.0
+	rng := rand.New(rand.NewPCG(13, 14))
+	lines := []inverse.Line{
+		{Point: [3]float64{0, 0, -1.3}, Dir: [3]float64{0, 1, 0}},
+		{Point: [3]float64{1, 0, 5}, Dir: [3]float64{0, 1, 0}},
+	}
+	var fits []Fit
+	for i := range 6 {
+		p := linesAcross(rng, lines, []float64{25, 200}, 2*float64(i), noise)
+		res, err := inverse.FitLines(p, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		fits = append(fits, Fit{Key: fmt.Sprintf("T%02d", i+1), Problem: p, Result: res, MeasuredNoise: noise})
+	}
+	w := sharedMisfit(fits, &BuildSettings{MeasuredNoise: noise}, &route.Settings{MaxReducedChi2: 4})
+	if !strings.Contains(w, "a conductor above the sensors") || strings.Contains(w, "axes are read wrong") && !strings.Contains(w, "do not turn one") {
+		t.Errorf("overhead line 5 m up: warning %q, want a conductor above the sensors named", w)
+	}
+}
