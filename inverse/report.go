@@ -522,6 +522,8 @@ func (f *fitter) summariseAsIs(c *candidate) (*summary, error) {
 			if unres[j] {
 				id.Dip = false
 				e.Notes = append(e.Notes, "dip not resolved by the data")
+			} else if math.Abs(g.dip) >= dipBound-dipBoundMargin {
+				e.Notes = append(e.Notes, DipAtBoundNote)
 			}
 		} else if f.sv.single && f.set.Dip == nil {
 			e.Notes = append(e.Notes, "dip not determined by this traverse: held horizontal")
@@ -737,6 +739,23 @@ func azimuthAtBoundNote() string {
 	b := singleAzimuthRange * 180 / math.Pi
 	return fmt.Sprintf("%s, %.0f deg either side of square to the traverse: the readings would turn the line to cross the traverse at under %.0f deg, nearly along it, which one traverse is not fitted for", AzimuthAtBoundNote, b, 90-b)
 }
+
+// DipAtBoundNote is the note (SourceEstimate.Notes) of a line whose dip ended at the
+// bound of the search (dipBound, 80 degrees): the readings would stand it up further,
+// as the field of a vertical conductor (a riser or down-lead beside the traverse) or
+// of one above the sensors does, and its position, depth and current are not those of
+// a buried line. In review a riser 3 m from a traverse fitted as a line 0.045 m under
+// the ground at 80.0 degrees, called sound, with a shallow-cover warning.
+const DipAtBoundNote = "dip stopped at (within a degree of) the 80 deg bound of the search: the readings would stand the line up (a vertical conductor, such as a riser or down-lead near the readings, is not fitted), so its position, depth and current are not a buried line's"
+
+// dipBound is the largest dip, radians, the fit gives a line, and dipBoundMargin how
+// near it a line's dip must end for DipAtBoundNote: a riser 1 m past the traverses'
+// ends left fits at 79.3 and 79.7 degrees, pressed to the bound and eased off it by
+// the noise (found in review).
+const (
+	dipBound       = 80 * math.Pi / 180
+	dipBoundMargin = 1 * math.Pi / 180
+)
 
 // EdgeOfSearchNote is the note (SourceEstimate.Notes) of a line that lies at the edge
 // of the region searched across the readings (twice their extent plus 5 m from their

@@ -210,8 +210,8 @@ func (sp *separable) packInto(buf []float64) (x, lo, hi []float64) {
 		}
 		if !g.holdDip {
 			x = append(x, g.dip)
-			lo = append(lo, -80*math.Pi/180)
-			hi = append(hi, 80*math.Pi/180)
+			lo = append(lo, -dipBound)
+			hi = append(hi, dipBound)
 		}
 	}
 	for _, d := range sp.dips {

@@ -1,6 +1,8 @@
 package report
 
 import (
+	"fmt"
+	"math"
 	"strings"
 
 	"undercurrent/inverse"
@@ -51,4 +53,25 @@ func lostLineProblem(res *inverse.Result) (why string, fail bool) {
 		return why + ", and no conductor is found under this group (one too deep or weak for these readings may lie there)", true
 	}
 	return why + ": its depth means nothing, and its current is that of a line at the depth it was held at", false
+}
+
+// dipAtBound returns why a group whose conductor's line s stopped at the
+// bound of the dip's search (inverse.DipAtBoundNote) has no estimate, or
+// "": the readings would stand the line up, as a vertical conductor's field
+// does, and the line's depth, position and current are then not a buried
+// line's. In review a riser 3 m from a traverse fitted as a line 0.045 m
+// under the ground at the 80 degree bound, -16 A, called sound, and its
+// cover raised a shallow-cover warning; one beyond the traverses' ends
+// made a route with a current reversing along it.
+func dipAtBound(s *inverse.SourceEstimate) string {
+	if s.Kind == KindDipole {
+		return ""
+	}
+	for _, n := range s.Notes {
+		if n == inverse.DipAtBoundNote {
+			return fmt.Sprintf("the line's dip stopped at %.1f degrees, at the 80 degree bound of the search: the readings would stand it up, as the field of a vertical conductor near them (a riser, a down-lead or an earth conductor on a wall or pole) does, which is not fitted, so its position, depth (%s m) and current (%s A) mean nothing and its cover is not checked",
+				math.Abs(s.Dip), PlusMinus(s.Depth, s.DepthSigma), PlusMinus(s.Current, s.CurrentSigma))
+		}
+	}
+	return ""
 }

@@ -148,7 +148,11 @@ func unfitNoCurrent(f *Fit, res *inverse.Result, ac bool) string {
 	if r <= farMisfit*measured {
 		return ""
 	}
-	return fmt.Sprintf(", and the fit misses the readings by %.3g nT RMS per component, %.3g times the %.3g nT noise they show: no line describes this field, so its current, position and depth mean nothing. A deep or faint conductor's field would still fit to about the noise: check the sensor's orientation and the field columns first (a sensor turned on its mount or upside down, two field columns swapped, an axis's sign reversed, a field logged north, east, down read as east, north, up; a base log beside the survey, --base, names the mistake), then nearby steel or conductors close together",
+	if a := aboveFit(f, measured, ac); a != nil {
+		return fmt.Sprintf(", and the fit misses the readings by %.3g nT RMS per component, %.3g times the %.3g nT noise they show: no line below the sensors describes this field, so its current, position and depth mean nothing; %s",
+			r, r/measured, measured, a.words(ac))
+	}
+	return fmt.Sprintf(", and the fit misses the readings by %.3g nT RMS per component, %.3g times the %.3g nT noise they show: no line describes this field, so its current, position and depth mean nothing. A deep or faint conductor's field would still fit to about the noise: check the sensor's orientation and the field columns first (a sensor turned on its mount or upside down, two field columns swapped, an axis's sign reversed, a field logged north, east, down read as east, north, up; a base log beside the survey, --base, names the mistake), or a conductor above the sensors, such as an overhead line or a cable tray, which the fit never places there (with the axes right, do not turn one to make the readings fit: that fits its mirror image below ground), then nearby steel or conductors close together",
 		r, r/measured, measured)
 }
 

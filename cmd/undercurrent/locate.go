@@ -401,6 +401,19 @@ is given, and fits line conductors to the readings: where each runs, how deep
 it lies (below the sensors' mean height, or below the ground with
 --reference-z), and its current with one-sigma uncertainties.
 
+What is fitted: straight lines below the sensors (at least 0.02 m below the
+lowest), dipping at most 80 degrees. Not fitted: a conductor above the
+sensors (an overhead line, a cable tray, cables under a deck or ceiling)
+and a vertical one (a riser or down-lead beside the traverse). A conductor
+above the sensors alone makes every fit fail; when a line above explains
+the readings the failure names it with its estimated current and height
+(do not turn an axis to make such readings fit: that puts its mirror image
+below ground). One above a buried cable biases the cable's current and
+depth: the fits then miss the readings by many times their noise, are not
+called sound, and the warning names a conductor above the sensors among
+the causes. A line fitted at the 80 degree dip bound (a riser's field)
+fails its group, with no cover check.
+
 With --group-by it fits each group (a traverse, a sensor, a time window)
 separately and builds the profile along the route: current, depth and
 position with chainage measured along the fitted route, and findings for a

@@ -334,7 +334,7 @@ func (w *assetWorker) commission(win *window) error {
 		w.misfits++
 		named := errors.New(w.sensorNames(err.Error()))
 		// The likely causes, unless the refusal gave them already.
-		causes := " (an extended conductor such as a flat bar close to the sensors, a bend, another source near the sensors, a conducting enclosure or screen (AC), " +
+		causes := " (an extended conductor such as a flat bar close to the sensors, a bend, another source near the sensors, a conductor level with or above the sensors the fit did not reach (give its point), a conducting enclosure or screen (AC), " +
 			"or a sensor's position or orientation in the site file wrong)"
 		if strings.Contains(err.Error(), "flat bar") {
 			causes = ""

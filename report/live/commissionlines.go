@@ -518,7 +518,7 @@ func misfitAt(p *inverse.Problem, src []inverse.Source, rms, limit float64) stri
 		pt := p.Points[best]
 		return fmt.Sprintf(" ("+misfitAtSensor+" [%g, %g, %g]: without it they miss by %.3g nT RMS; its position or orientation in the site file is likely wrong, or it was moved)", pt[0], pt[1], pt[2], bestRMS)
 	}
-	return " (an extended conductor such as a flat bar close to the sensors, a bend, another source near the sensors, or a conducting enclosure or screen (AC); or a sensor's position or orientation in the site file wrong)"
+	return " (an extended conductor such as a flat bar close to the sensors, a bend, another source near the sensors, a conductor level with or above the sensors the fit did not reach (give its point, roughly where it runs), or a conducting enclosure or screen (AC); or a sensor's position or orientation in the site file wrong)"
 }
 
 // misfitAtSensor begins misfitAt's naming of one sensor.

@@ -644,7 +644,8 @@ const rowTolerance = 0.01
 // seededLine fits one line, named name, to the readings of p from plain
 // starts (commissionFromPoints from a point, along start when given, and
 // along north and east): at the sensors' centroid and at 0.5, 1, 2 and 4
-// times their spread below it. It returns the fit that misses the
+// times their spread below it; and level with it and 0.5 and 1 times the
+// spread above it, there and one spread east, west, north and south. It returns the fit that misses the
 // readings least.
 func seededLine(p *inverse.Problem, in *SolveInput, name string, start [3]float64) ([]ConductorConfig, error) {
 	var c [3]float64
@@ -664,8 +665,23 @@ func seededLine(p *inverse.Problem, in *SolveInput, name string, start [3]float6
 	var best []ConductorConfig
 	var bestRMS float64
 	var lastErr error
+	var starts [][3]float64
 	for _, f := range []float64{0, 0.5, 1, 2, 4} {
-		pt := sub(c, [3]float64{0, 0, f * spread})
+		starts = append(starts, sub(c, [3]float64{0, 0, f * spread}))
+	}
+	// Level with the sensors and above them, beside the readings as well
+	// as over them: a line beside a wall's rows of sensors, level with
+	// them or up to 0.3 m above, was refused from the starts below (its
+	// fit stopped 1.5e3-2e3 nT off: found in review).
+	for _, f := range []float64{0, -0.5, -1} {
+		for _, off := range [][2]float64{{1, 0}, {-1, 0}, {0, 1}, {0, -1}, {0, 0}} {
+			if f == 0 && off == [2]float64{} {
+				continue
+			}
+			starts = append(starts, add(c, [3]float64{off[0] * spread, off[1] * spread, -f * spread}))
+		}
+	}
+	for _, pt := range starts {
 		for _, d := range dirs {
 			conds, err := commissionFromPoints(p, []ConductorConfig{{Name: name, Point: pt, pointSet: true}}, d)
 			if err != nil {
