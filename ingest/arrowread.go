@@ -144,7 +144,7 @@ func newArrowFileReader(name string, f *os.File, cfg *config) (_ Reader, err err
 	if err := checkArrowFooter(f); err != nil {
 		return nil, fileErr(name, plainErr{err}, "not a readable Arrow IPC file (corrupt?)")
 	}
-	fr, err := ipc.NewFileReader(f, ipc.WithAllocator(ipcguard.Bounded{Allocator: cfg.mem, Max: MaxBuffer}))
+	fr, err := ipc.NewFileReader(f, ipc.WithAllocator(ipcguard.Bounded{Allocator: cfg.mem, Max: maxBuffer}))
 	if err != nil {
 		if !endsWith(f, "ARROW1") {
 			return nil, fileErr(name, nil, "not a complete Arrow IPC file: its footer is missing or cut short (the file does not end with the ARROW1 magic bytes; an interrupted copy or a writer that stopped?)")
@@ -216,9 +216,9 @@ func newArrowStreamReader(name string, rd io.Reader, f *os.File, regular bool, c
 	src := &eofReader{r: rd}
 	lim := ipcguard.Limits{}
 	if !regular {
-		lim = ipcguard.Limits{Body: MaxPipeMessage, Why: "a stream read from a pipe may hold messages of at most that size: save it to a file and read the file"}
+		lim = ipcguard.Limits{Body: maxPipeMessage, Why: "a stream read from a pipe may hold messages of at most that size: save it to a file and read the file"}
 	}
-	mem := ipcguard.Bounded{Allocator: cfg.mem, Max: MaxBuffer}
+	mem := ipcguard.Bounded{Allocator: cfg.mem, Max: maxBuffer}
 	sr, err := ipc.NewReaderFromMessageReader(ipcguard.NewReader(src, mem, lim), ipc.WithAllocator(mem))
 	if err != nil {
 		if src.eof && (errors.Is(err, io.ErrUnexpectedEOF) || errors.Is(err, io.EOF)) {
@@ -283,7 +283,7 @@ func newParquetReader(name string, f *os.File, cfg *config) (_ Reader, err error
 		pf.Close()
 		return nil, fileErr(name, plainErr{err}, "not a readable Parquet file (corrupt?): its %s key, the Arrow schema stored by the writer, cannot be read", arrowSchemaKey)
 	}
-	fr, err := pqarrow.NewFileReader(pf, pqarrow.ArrowReadProperties{BatchSize: int64(cfg.batchRows)}, ipcguard.Bounded{Allocator: cfg.mem, Max: MaxBuffer})
+	fr, err := pqarrow.NewFileReader(pf, pqarrow.ArrowReadProperties{BatchSize: int64(cfg.batchRows)}, ipcguard.Bounded{Allocator: cfg.mem, Max: maxBuffer})
 	if err != nil {
 		pf.Close()
 		return nil, fileErr(name, plainErr{err}, "cannot read the Parquet schema")

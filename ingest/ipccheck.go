@@ -76,6 +76,13 @@ func checkArrowFooter(f *os.File) error {
 // uncompressed length asks for more is refused as corrupt.
 const MaxBuffer = 1 << 30
 
+// maxBuffer and maxPipeMessage are the limits in force: MaxBuffer and
+// MaxPipeMessage, lowered by tests to check the rules on small files.
+var (
+	maxBuffer      = MaxBuffer
+	maxPipeMessage = int64(MaxPipeMessage)
+)
+
 // checkArrowSchemaKey checks the serialized Arrow schema a Parquet file
 // may hold under ARROW:schema, which pqarrow decodes with arrow-go's IPC
 // reader, decoding the base64 text as pqarrow does.
