@@ -1460,10 +1460,15 @@ func headerExample(n int) string {
 }
 
 // checkSharedSource refuses a column named by the mappings of two
-// canonical columns (bx=Bx,by=Bx): a reader feeds each source column to
-// one canonical column, and such a mapping is far more likely a typo than
-// a wish to read one column twice. Before, the CSV reader read zeros into
-// one of the two, in silence.
+// canonical data columns (bx=Bx,by=Bx): a reader feeds each source column
+// to one canonical column, and such a mapping is far more likely a typo
+// than a wish to read one column twice. Before, the CSV reader read zeros
+// into one of the two, in silence. The one exception is the group
+// (--group-by) naming a part of a time joined from two columns: both are
+// read as text, and a multi-day log grouped by the date column that is
+// also the first part of its time (time=Date+Time, --group-by Date) is a
+// real use. (A group sharing a number column, group=Bx with bx=Bx, is
+// still refused: the CSV reader would read zeros into bx.)
 func (p *plan) checkSharedSource(headerLine int) error {
 	by := map[int]int{}     // source column -> the first canonical column naming it
 	for c := range nCanon { // in order, so that the message is stable
@@ -1479,6 +1484,9 @@ func (p *plan) checkSharedSource(headerLine int) error {
 			if !dup {
 				by[i] = c
 				continue
+			}
+			if c == cGroup && first == cTime && p.timeJoin >= 0 {
+				continue // both read as text
 			}
 			what := "column"
 			if p.format != string(FormatCSV) {
