@@ -231,13 +231,16 @@ const unterminatedHint = "to read the rows before the cut, allow an unterminated
 func newArrowStreamReader(name string, rd io.Reader, f *os.File, regular bool, cfg *config) (_ Reader, err error) {
 	defer recoverCorrupt(name, "Arrow IPC stream", &err)
 	src := &eofReader{r: rd}
-	// A message body is read into memory that grows as its bytes arrive:
-	// from a regular file, a declared length past the end of the file
-	// takes no more memory than the file holds, and stops as a cut-short
-	// file. A pipe's length is not known, so its bodies are capped.
+	// From a regular file a message body that fits in the bytes left is
+	// read into one buffer of its length; a declared length past the end
+	// grows as its bytes arrive, takes no more memory than the file
+	// holds, and stops as a cut-short file. A pipe's length is not known, so its bodies are capped.
 	// maxBuffer bounds only what arrow-go sizes from lengths the input
 	// does not hold (decompressed buffers, one column each).
 	lim := ipcguard.Limits{}
+	if st, err := f.Stat(); err == nil && regular {
+		lim.Size = st.Size()
+	}
 	if !regular {
 		lim = ipcguard.Limits{Body: maxPipeMessage, Why: "a stream read from a pipe may hold messages of at most that size, as its length is not known: save it to a file and read the file, or write it in smaller record batches"}
 	}
