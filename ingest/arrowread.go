@@ -234,9 +234,10 @@ func newArrowStreamReader(name string, rd io.Reader, f *os.File, regular bool, c
 	// From a regular file a message body that fits in the bytes left is
 	// read into one buffer of its length; a declared length past the end
 	// grows as its bytes arrive, takes no more memory than the file
-	// holds, and stops as a cut-short file. A pipe's length is not known, so its bodies are capped.
-	// maxBuffer bounds only what arrow-go sizes from lengths the input
-	// does not hold (decompressed buffers, one column each).
+	// holds, and stops as a cut-short file. A pipe's length is not known,
+	// so its bodies are capped (maxPipeMessage). maxBuffer bounds only
+	// what arrow-go sizes from lengths the input does not hold
+	// (decompressed buffers, one column each).
 	lim := ipcguard.Limits{}
 	if st, err := f.Stat(); err == nil && regular {
 		lim.Size = st.Size()
