@@ -141,10 +141,21 @@ func newArrowReaderFor(name, format string, sc *arrow.Schema, cfg *config) (*arr
 
 func newArrowFileReader(name string, f *os.File, cfg *config) (_ Reader, err error) {
 	defer recoverCorrupt(name, "Arrow IPC file", &err)
-	if err := checkArrowFooter(f); err != nil {
+	batches, end, err := checkArrowFooter(f)
+	if err != nil {
 		return nil, fileErr(name, plainErr{err}, "not a readable Arrow IPC file (corrupt?)")
 	}
-	fr, err := ipc.NewFileReader(f, ipc.WithAllocator(ipcguard.Bounded{Allocator: cfg.mem, Max: MaxBuffer}))
+	// A record batch body is read whole into one buffer: it is bounded by
+	// the file, whose footer arrow-go checks each block against, not by
+	// arrow-go's default limit (256 MiB) nor by maxBuffer, which bounds
+	// the buffers sized from lengths the file does not hold (decompressed
+	// columns).
+	size := int64(0)
+	if st, err := f.Stat(); err == nil {
+		size = st.Size()
+	}
+	mem := ipcguard.Bounded{Allocator: cfg.mem, Max: int(max(int64(maxBuffer), size))}
+	fr, err := ipc.NewFileReader(f, ipc.WithAllocator(mem), ipc.WithBodySizeLimit(max(size, 1)))
 	if err != nil {
 		if !endsWith(f, "ARROW1") {
 			return nil, fileErr(name, nil, "not a complete Arrow IPC file: its footer is missing or cut short (the file does not end with the ARROW1 magic bytes; an interrupted copy or a writer that stopped?)")
@@ -160,6 +171,12 @@ func newArrowFileReader(name string, f *os.File, cfg *config) (_ Reader, err err
 	r.src = func() (arrow.RecordBatch, error) {
 		if i >= fr.NumRecords() {
 			return nil, nil
+		}
+		if i < len(batches) && len(batches) == fr.NumRecords() {
+			if past := blockPastEnd(batches[i], end); past != "" {
+				i++
+				return nil, errors.New(past)
+			}
 		}
 		rec, err := fr.RecordBatch(i)
 		i++
@@ -214,15 +231,28 @@ const unterminatedHint = "to read the rows before the cut, allow an unterminated
 func newArrowStreamReader(name string, rd io.Reader, f *os.File, regular bool, cfg *config) (_ Reader, err error) {
 	defer recoverCorrupt(name, "Arrow IPC stream", &err)
 	src := &eofReader{r: rd}
+	// From a regular file a message body that fits in the bytes left is
+	// read into one buffer of its length; a declared length past the end
+	// grows as its bytes arrive, takes no more memory than the file
+	// holds, and stops as a cut-short file. A pipe's length is not known,
+	// so its bodies are capped (maxPipeMessage). maxBuffer bounds only
+	// what arrow-go sizes from lengths the input does not hold
+	// (decompressed buffers, one column each).
 	lim := ipcguard.Limits{}
-	if !regular {
-		lim = ipcguard.Limits{Body: MaxPipeMessage, Why: "a stream read from a pipe may hold messages of at most that size: save it to a file and read the file"}
+	if st, err := f.Stat(); err == nil && regular {
+		lim.Size = st.Size()
 	}
-	mem := ipcguard.Bounded{Allocator: cfg.mem, Max: MaxBuffer}
-	sr, err := ipc.NewReaderFromMessageReader(ipcguard.NewReader(src, mem, lim), ipc.WithAllocator(mem))
+	if !regular {
+		lim = ipcguard.Limits{Body: maxPipeMessage, Why: "a stream read from a pipe may hold messages of at most that size, as its length is not known: save it to a file and read the file, or write it in smaller record batches"}
+	}
+	mem := ipcguard.Bounded{Allocator: cfg.mem, Max: maxBuffer}
+	sr, err := ipc.NewReaderFromMessageReader(ipcguard.NewReader(src, cfg.mem, lim), ipc.WithAllocator(mem))
 	if err != nil {
 		if src.eof && (errors.Is(err, io.ErrUnexpectedEOF) || errors.Is(err, io.EOF)) {
 			return nil, fileErr(name, nil, "not a complete Arrow IPC stream: the file stops at byte %d, before its schema message ends, so it holds no rows", src.n)
+		}
+		if errors.Is(err, ipcguard.ErrTooLong) {
+			return nil, fileErr(name, plainErr{err}, "Arrow IPC stream: its schema message is over a size limit")
 		}
 		return nil, fileErr(name, plainErr{err}, "not a readable Arrow IPC stream (corrupt, or not Arrow?)")
 	}
@@ -243,6 +273,9 @@ func newArrowStreamReader(name string, rd io.Reader, f *os.File, regular bool, c
 			return rec, nil
 		}
 		if err := sr.Err(); err != nil {
+			if errors.Is(err, ipcguard.ErrTooLong) {
+				return nil, fileErr(name, plainErr{err}, "Arrow IPC stream: the message after byte %d (after %s) is over a size limit", whole, rowsIn(rows, batches))
+			}
 			if !src.eof || !errors.Is(err, io.ErrUnexpectedEOF) {
 				return nil, fileErr(name, plainErr{err}, "Arrow IPC stream: the message after byte %d (after %s) cannot be read (corrupt file?)", whole, rowsIn(rows, batches))
 			}
@@ -283,7 +316,7 @@ func newParquetReader(name string, f *os.File, cfg *config) (_ Reader, err error
 		pf.Close()
 		return nil, fileErr(name, plainErr{err}, "not a readable Parquet file (corrupt?): its %s key, the Arrow schema stored by the writer, cannot be read", arrowSchemaKey)
 	}
-	fr, err := pqarrow.NewFileReader(pf, pqarrow.ArrowReadProperties{BatchSize: int64(cfg.batchRows)}, ipcguard.Bounded{Allocator: cfg.mem, Max: MaxBuffer})
+	fr, err := pqarrow.NewFileReader(pf, pqarrow.ArrowReadProperties{BatchSize: int64(cfg.batchRows)}, ipcguard.Bounded{Allocator: cfg.mem, Max: maxBuffer})
 	if err != nil {
 		pf.Close()
 		return nil, fileErr(name, plainErr{err}, "cannot read the Parquet schema")

@@ -114,7 +114,7 @@ func Open(path string, opts ...Option) (Reader, error) {
 			return nil, err
 		}
 		if o != nil {
-			cfg.origin, cfg.originMode = *o, originFixed
+			cfg.origin, cfg.originMode, cfg.originOfMean = *o, originFixed, true
 		}
 	}
 	return open(path, cfg)

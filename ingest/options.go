@@ -73,6 +73,7 @@ type config struct {
 	frameSet          bool
 	origin            Geodetic
 	originMode        originMode
+	originOfMean      bool // origin is the mean position, found by a first pass (WithOriginMean)
 	allowMissing      bool
 	keepImplausible   bool // WithImplausibleValues
 	timeOptional      bool // a log without a time column is read, its times NaN (WithTimeOptional)

@@ -76,6 +76,8 @@ type plan struct {
 	noFixRows int64
 	noFixAt   []string
 
+	// fileOrigin is the origin the file states (MetaOrigin), as written.
+	fileOrigin string
 	// timeJoin is the time-of-day column joined after the date column
 	// src[cTime] with a space (a mapping time=DATE+TIME); -1 when none.
 	timeJoin int
@@ -435,7 +437,7 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 					return nil, fileErr(file, nil, "its origin (metadata %s, in a CSV log the line \"# %s: %s\"): %s", MetaOrigin, MetaOrigin, v, m)
 				}
 				g = p.wrapOrigin(g, "metadata "+MetaOrigin)
-				p.origin = &g
+				p.origin, p.fileOrigin = &g, v
 			}
 		case strings.HasPrefix(k, MetaPrefix):
 			p.meta[strings.TrimPrefix(k, MetaPrefix)] = v
@@ -688,6 +690,19 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 		p.hasPos = true
 	case hasLL:
 		p.hasPos, p.geodetic = true, true
+		// A latitude/longitude log places its readings itself: an origin
+		// it states (checked above) is not used. Said, since the heights
+		// (and --reference-z) are then measured from another height than
+		// the one the line gives (found in review: cover 1.40 m for 1.10
+		// with --reference-z 0 under a line 0.3 m below the readings).
+		if p.origin != nil && (cfg.originMode != originFixed || cfg.originOfMean) {
+			from := "its first reading"
+			if cfg.originOfMean {
+				from = "the mean of its positions (the mean origin asked for)"
+			}
+			p.warn("%s: its origin (metadata %s, in a CSV log the line \"# %s: %s\") is not used: a latitude/longitude log is placed from %s, and its x, y, z (and the ground level given as a z, --reference-z) are measured from there, not from the stated origin's %g m; to measure from the stated origin, give it as the origin (WithOrigin, on the command line --origin %s)",
+				file, MetaOrigin, MetaOrigin, p.fileOrigin, from, p.origin.H, strings.Join(strings.Fields(p.fileOrigin), ","))
+		}
 		switch cfg.originMode {
 		case originFixed:
 			o := cfg.origin
@@ -1460,10 +1475,15 @@ func headerExample(n int) string {
 }
 
 // checkSharedSource refuses a column named by the mappings of two
-// canonical columns (bx=Bx,by=Bx): a reader feeds each source column to
-// one canonical column, and such a mapping is far more likely a typo than
-// a wish to read one column twice. Before, the CSV reader read zeros into
-// one of the two, in silence.
+// canonical data columns (bx=Bx,by=Bx): a reader feeds each source column
+// to one canonical column, and such a mapping is far more likely a typo
+// than a wish to read one column twice. Before, the CSV reader read zeros
+// into one of the two, in silence. The one exception is the group
+// (--group-by) naming a part of a time joined from two columns: both are
+// read as text, and a multi-day log grouped by the date column that is
+// also the first part of its time (time=Date+Time, --group-by Date) is a
+// real use. (A group sharing a number column, group=Bx with bx=Bx, is
+// still refused: the CSV reader would read zeros into bx.)
 func (p *plan) checkSharedSource(headerLine int) error {
 	by := map[int]int{}     // source column -> the first canonical column naming it
 	for c := range nCanon { // in order, so that the message is stable
@@ -1479,6 +1499,9 @@ func (p *plan) checkSharedSource(headerLine int) error {
 			if !dup {
 				by[i] = c
 				continue
+			}
+			if c == cGroup && first == cTime && p.timeJoin >= 0 {
+				continue // both read as text
 			}
 			what := "column"
 			if p.format != string(FormatCSV) {

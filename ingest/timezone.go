@@ -192,15 +192,44 @@ func (z *zoneClock) noteRepeat(first bool, v float64, where, text string) {
 	if first && z.early || !first && z.late {
 		return
 	}
-	_, off := time.Unix(int64(math.Floor(v)), 0).In(z.loc).Zone()
+	t := time.Unix(int64(math.Floor(v)), 0).In(z.loc)
+	_, off := t.Zone()
 	o := offsetText(time.Duration(off) * time.Second)
+	// How far the clocks went back: from this offset to the next one
+	// (first time round), or from the one before to this (second).
+	start, end := t.ZoneBounds()
+	var back int
+	if first && !end.IsZero() {
+		_, next := end.Zone()
+		back = off - next
+	} else if !first && !start.IsZero() {
+		_, prev := start.Add(-time.Second).Zone()
+		back = prev - off
+	}
+	span, that := repeatedSpan(time.Duration(back) * time.Second)
 	if first {
 		z.early = true
-		z.notes = append(z.notes, fmt.Sprintf("%s: %s falls in the hour repeated when the clocks of %s went back: it and the times after it are read at %s (the first time round) while the log's times go forward; check the readings of that hour", where, quoteText(text), z.loc, o))
+		z.notes = append(z.notes, fmt.Sprintf("%s: %s falls in %s repeated when the clocks of %s went back: it and the times after it are read at %s (the first time round) while the log's times go forward; check the readings of %s", where, quoteText(text), span, z.loc, o, that))
 		return
 	}
 	z.late = true
-	z.notes = append(z.notes, fmt.Sprintf("%s: %s falls in the hour repeated when the clocks of %s went back and steps back from the time before: it and the times of that hour after it are read at %s (the second time round), keeping the log's times in order", where, quoteText(text), z.loc, o))
+	z.notes = append(z.notes, fmt.Sprintf("%s: %s falls in %s repeated when the clocks of %s went back and steps back from the time before: it and the times of %s after it are read at %s (the second time round), keeping the log's times in order", where, quoteText(text), span, z.loc, that, o))
+}
+
+// repeatedSpan names the wall-clock time repeated when the clocks go back
+// by d, as "the hour" and "that hour" for the usual hour, else by its
+// length ("the 30 minutes" and "those 30 minutes" at Lord Howe Island).
+func repeatedSpan(d time.Duration) (the, that string) {
+	switch {
+	case d == time.Hour || d <= 0:
+		return "the hour", "that hour"
+	case d%time.Hour == 0:
+		n := int(d / time.Hour)
+		return fmt.Sprintf("the %d hours", n), fmt.Sprintf("those %d hours", n)
+	default:
+		n := int(d / time.Minute)
+		return fmt.Sprintf("the %d minutes", n), fmt.Sprintf("those %d minutes", n)
+	}
 }
 
 // flush returns the notes taken since the last call.

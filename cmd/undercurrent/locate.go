@@ -206,7 +206,7 @@ func (o *locateOptions) check(fs *pflag.FlagSet) error {
 	if fs != nil && fs.Lookup("calibration") != nil {
 		// The flag set binds o.calibrations anew for each run.
 		var err error
-		if o.calibration, o.calPerLog, err = splitPerLog("calibration", o.calibrations, calibrationIsBare); err != nil {
+		if o.calibration, o.calPerLog, err = splitPerLog("calibration", o.calibrations, calibrationIsBare, false); err != nil {
 			return err
 		}
 	}

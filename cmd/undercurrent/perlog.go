@@ -18,19 +18,27 @@ import (
 // LOG=CAL.json). Before, the flag was one value for every log, and a
 // two-sensor merge was wrong on one side whichever calibration was given (found in review).
 
-// perLogValue is one LOG=VALUE of a flag given per log.
+// perLogValue is one LOG=VALUE of a flag given per log: the log and the
+// value as first split, and the whole text as given, which resolvePerLog
+// splits at another "=" when the log's path holds one.
 type perLogValue struct {
 	log, value string
+	raw        string
 }
 
 // splitPerLog parts the values given to flag into the bare one, which
 // applies to every log not named (at most one), and those given as
 // LOG=VALUE. isBare says whether a value with "=" in it is a bare value
-// still (a calibration file whose name holds "="); nil: never.
-func splitPerLog(flag string, values []string, isBare func(string) bool) (bare string, named []perLogValue, err error) {
+// still (a calibration file whose name holds "="); nil: never. cutLast
+// splits LOG=VALUE at the last "=" (a value that never holds one, as a
+// height), else at the first; resolvePerLog may split it elsewhere.
+func splitPerLog(flag string, values []string, isBare func(string) bool, cutLast bool) (bare string, named []perLogValue, err error) {
 	hasBare := false
 	for _, v := range values {
 		log, val, ok := strings.Cut(v, "=")
+		if i := strings.LastIndex(v, "="); cutLast && i >= 0 {
+			log, val = v[:i], v[i+1:]
+		}
 		if ok && isBare != nil && isBare(v) {
 			ok = false
 		}
@@ -45,9 +53,38 @@ func splitPerLog(flag string, values []string, isBare func(string) bool) (bare s
 		if log == "" || val == "" {
 			return "", nil, usageErrorf("--%s %s: want LOG=VALUE, the log as given on the command line (or its base name) and its own value", flag, v)
 		}
-		named = append(named, perLogValue{log: log, value: val})
+		named = append(named, perLogValue{log: log, value: val, raw: v})
 	}
 	return bare, named, nil
+}
+
+// namesLog says whether name names exactly one of logs, by the path as
+// given or by its base name.
+func namesLog(name string, logs []string) bool {
+	hits := 0
+	for _, l := range logs {
+		if l == name || filepath.Clean(l) == filepath.Clean(name) {
+			return true
+		}
+		if filepath.Base(l) == name {
+			hits++
+		}
+	}
+	return hits == 1
+}
+
+// resplit splits a LOG=VALUE given as raw at the "=" whose left part
+// names a log, the longest such part first, so that a log whose path
+// holds "=" ("d=1/line.csv=cal.json") can be named; nv as split at first
+// if no left part names a log.
+func resplit(nv perLogValue, logs []string) perLogValue {
+	for i := strings.LastIndex(nv.raw, "="); i > 0; i = strings.LastIndex(nv.raw[:i], "=") {
+		log, val := strings.TrimSpace(nv.raw[:i]), strings.TrimSpace(nv.raw[i+1:])
+		if val != "" && namesLog(log, logs) {
+			return perLogValue{log: log, value: val, raw: nv.raw}
+		}
+	}
+	return nv
 }
 
 // resolvePerLog matches each named log to the survey logs, by the path as
@@ -60,6 +97,9 @@ func resolvePerLog(flag string, named []perLogValue, logs []string) (map[int]str
 	}
 	out := map[int]string{}
 	for _, nv := range named {
+		if nv.raw != "" {
+			nv = resplit(nv, logs)
+		}
 		k := -1
 		for i, l := range logs {
 			if l == nv.log || filepath.Clean(l) == filepath.Clean(nv.log) {
@@ -219,7 +259,7 @@ func baseUncovered(basePath string, logs, apart []string, errs []error) (string,
 // negative, NaN or infinite; a named log's height of 0 is refused too (for
 // sensors on the ground --reference-z is the flag).
 func (o *locateOptions) splitSensorHeights() error {
-	bare, named, err := splitPerLog("sensor-height", o.sensorHeights, nil)
+	bare, named, err := splitPerLog("sensor-height", o.sensorHeights, nil, true)
 	if err != nil {
 		return err
 	}

@@ -369,11 +369,13 @@ func CheckMessage(meta []byte) (int64, error) {
 
 // Block is a footer's pointer to a message in an Arrow IPC file: the
 // message (length prefix and metadata) at Offset, Meta bytes long, then
-// its body of Body bytes.
+// its body of Body bytes; Dictionary tells a dictionary block from a
+// record batch block.
 type Block struct {
-	Offset int64
-	Meta   int32
-	Body   int64
+	Offset     int64
+	Meta       int32
+	Body       int64
+	Dictionary bool
 }
 
 // CheckFooter checks an Arrow IPC file's footer flatbuffer (the bytes
@@ -410,7 +412,8 @@ func CheckBlock(b Block, meta []byte) error {
 }
 
 // FooterBlocks checks an Arrow IPC file's footer flatbuffer and returns
-// its dictionary and record batch blocks.
+// its dictionary blocks, then its record batch blocks, each in the
+// footer's order.
 func FooterBlocks(footer []byte) ([]Block, error) {
 	w := newWalker(footer, "file footer")
 	f, err := w.root()
@@ -426,7 +429,8 @@ func FooterBlocks(footer []byte) ([]Block, error) {
 		}
 	}
 	var blocks []Block
-	for slot, what := range map[int]string{2: "the footer's dictionary block list", 3: "the footer's record batch block list"} {
+	for slot := 2; slot <= 3; slot++ {
+		what := map[int]string{2: "the footer's dictionary block list", 3: "the footer's record batch block list"}[slot]
 		first, n, err := f.vector(slot, 24, what)
 		if err != nil {
 			return nil, err
@@ -434,9 +438,10 @@ func FooterBlocks(footer []byte) ([]Block, error) {
 		for i := 0; i < n; i++ { // struct Block: offset long, metaDataLength int, (pad), bodyLength long
 			p := first + 24*i
 			blocks = append(blocks, Block{
-				Offset: int64(binary.LittleEndian.Uint64(w.b[p:])),
-				Meta:   int32(binary.LittleEndian.Uint32(w.b[p+8:])),
-				Body:   int64(binary.LittleEndian.Uint64(w.b[p+16:])),
+				Offset:     int64(binary.LittleEndian.Uint64(w.b[p:])),
+				Meta:       int32(binary.LittleEndian.Uint32(w.b[p+8:])),
+				Body:       int64(binary.LittleEndian.Uint64(w.b[p+16:])),
+				Dictionary: slot == 2,
 			})
 		}
 	}

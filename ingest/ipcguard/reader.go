@@ -22,6 +22,11 @@ type Limits struct {
 	// Why ends the refusal of a body over the Body limit, to tell the
 	// user what to do (e.g. "save the stream to a file first").
 	Why string
+	// Size is the input's length when known (a regular file read from
+	// its start), else 0. A body that fits in the bytes left is read
+	// into one buffer of its length; one declared past the end grows as
+	// its bytes arrive, and stops where the input does.
+	Size int64
 }
 
 // chunk is the first step of a message part's buffer: parts grow by
@@ -150,7 +155,17 @@ func (r *Reader) Message() (*ipc.Message, error) {
 	if r.lim.Body > 0 && bodyLen > r.lim.Body {
 		return nil, r.tooLong(start, "a body", bodyLen, r.lim.Body, r.lim.Why)
 	}
-	body, err := r.grow(bodyLen)
+	var body *memory.Buffer
+	if r.lim.Size > 0 && bodyLen <= r.lim.Size-r.N {
+		body = memory.NewResizableBuffer(r.mem)
+		body.Resize(int(bodyLen))
+		if err = r.read(body.Bytes()); err != nil {
+			body.Release()
+			body = nil
+		}
+	} else {
+		body, err = r.grow(bodyLen)
+	}
 	if err != nil {
 		return nil, fmt.Errorf("arrow/ipc: could not read message body: %w", err)
 	}
