@@ -222,7 +222,8 @@ type BuildSettings struct {
 // Each group records the chi-square against the survey's reference noise
 // (Group.ReferenceChi2); a converged group the route calls a poor fit gets
 // the reason in its Problem, so that every output agrees with the
-// findings. Document.UncertaintyNote is set to SigmaNote, and each route
+// findings. Document.PositionSigma is set from the fits' settings and
+// Document.UncertaintyNote to UncertaintyNoteFor it, and each route
 // gets its between-station scatter (Route.StationScatterCurrent).
 //
 // Signal.Mode is set to AC when the problems carry phasors, DC otherwise,
@@ -471,7 +472,8 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 		d.Warnings = append(d.Warnings, w)
 	}
 	markLoneMisfits(d.Groups, fits, &bs, rs)
-	d.UncertaintyNote = SigmaNote
+	d.PositionSigma = positionSigma(fits)
+	d.UncertaintyNote = UncertaintyNoteFor(d.PositionSigma)
 	aloneFindings(fits, r)
 	surfaceFindings(fits, r)
 	sameObjectFindings(fits, r)
@@ -1834,4 +1836,18 @@ func fixedFailedFindings(d *Document, fits []Fit, r *route.Route) {
 	if added {
 		SortFindings(d.Findings)
 	}
+}
+
+// positionSigma is the position sigmas the fits counted in their sigmas
+// (Document.PositionSigma): those of the first fit whose settings give
+// the positions an uncertainty and do not make it robust (whose Huber
+// weights leave them unused, inverse.PositionSigmaRobustNote); nil when no
+// fit's do (the positions taken as exact).
+func positionSigma(fits []Fit) *PositionSigma {
+	for _, f := range fits {
+		if s := f.Settings; s != nil && !s.Robust && (s.PositionSigmaPlan > 0 || s.PositionSigmaUp > 0) {
+			return &PositionSigma{Plan: s.PositionSigmaPlan, Up: s.PositionSigmaUp}
+		}
+	}
+	return nil
 }

@@ -7,6 +7,7 @@ import (
 	"math"
 	"slices"
 	"strconv"
+	"strings"
 
 	"undercurrent/inverse"
 	"undercurrent/inverse/route"
@@ -25,7 +26,10 @@ import (
 // station's current (and phase), whose shares the rows' current_a give.
 // uncertainty_note is empty unless the group's sigmas carry a caveat of
 // their own: "robust (Huber) weights: uncertainties are approximate"
-// (inverse.RobustNote) for a fit with --robust. current_first_walk_a and
+// (inverse.RobustNote) for a fit with --robust; "sigmas count the reading
+// noise and position uncertainty (0.2 m plan, 0.15 m height)" for a fit
+// that counted the positions' uncertainty (--position-sigma,
+// Document.PositionSigma; the group's notes say so). current_first_walk_a and
 // its sigma are, on a used station's row of a route walked again at
 // currents that differ by one change or ratio per walk (Route.FirstWalk),
 // the station's current at the first walk's level, as the steps, the
@@ -41,7 +45,8 @@ import (
 // (conductor not empty), the realistic spread of one station's current
 // and depth along that conductor's route (Route.StationScatterCurrent and
 // StationScatterDepth, as results.json names them; cover's is depth's),
-// which the fits' sigmas, counting the reading noise alone, understate;
+// which the fits' sigmas, counting the reading noise (and the position
+// uncertainty given) alone, understate;
 // empty where the route has too few triples of used stations to give one.
 // log is the survey log the group's readings come from, its path as given
 // (Group.Log), on every row of the group.
@@ -185,6 +190,8 @@ func WriteCSVWith(w io.Writer, d *Document, opt CSVOptions) error {
 			set("problem", textCell(g.Problem))
 			if slices.Contains(g.Notes, inverse.RobustNote) {
 				set("uncertainty_note", inverse.RobustNote)
+			} else if d.PositionSigma != nil && slices.ContainsFunc(g.Notes, func(n string) bool { return strings.HasPrefix(n, inverse.PositionSigmaNote) }) {
+				set("uncertainty_note", positionSigmaCell(d.PositionSigma))
 			}
 			return row
 		}
@@ -512,4 +519,10 @@ func fixSig(v, sigma float64, prec int) string {
 		prec = max(prec, min(12, 2-int(math.Floor(math.Log10(sigma)))))
 	}
 	return fix(v, prec)
+}
+
+// positionSigmaCell is the uncertainty_note of a fit that counted the
+// positions' uncertainty pos.
+func positionSigmaCell(pos *PositionSigma) string {
+	return "sigmas count " + pos.Words()
 }

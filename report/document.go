@@ -2,7 +2,9 @@ package report
 
 import (
 	"encoding/json"
+	"fmt"
 	"math"
+	"strconv"
 )
 
 // SchemaVersion is the version of the result document written by this
@@ -83,23 +85,77 @@ type Document struct {
 	// correct routine run printed warnings a crew could not act on
 	// (found in review).
 	Notes []string `json:"notes,omitempty"`
+	// PositionSigma is the one-sigma uncertainty of the logged positions
+	// that the fits carried into their sigmas (locate --position-sigma,
+	// inverse.Settings.PositionSigmaPlan and PositionSigmaUp); nil when
+	// they took the positions as exact.
+	PositionSigma *PositionSigma `json:"position_sigma,omitempty"`
 	// UncertaintyNote says in words what the sigmas of the fits count
-	// (the reading noise only, not the error of the model) and where a
-	// realistic spread is given (Route.StationScatterCurrent and
-	// StationScatterDepth). Build sets it to SigmaNote.
+	// (the reading noise, and with PositionSigma the positions'
+	// uncertainty; not the error of the model) and where a realistic
+	// spread is given (Route.StationScatterCurrent and
+	// StationScatterDepth). Build sets it to UncertaintyNoteFor
+	// (PositionSigma): SigmaNote without position sigmas.
 	UncertaintyNote string `json:"uncertainty_note,omitempty"`
 }
 
-// SigmaNote is the Document.UncertaintyNote that Build writes.
+// PositionSigma is the one-sigma uncertainty of the logged positions the
+// fits counted in their sigmas, m: Plan across the plan (east and north,
+// each), Up in height.
+type PositionSigma struct {
+	Plan float64 `json:"plan_m"`
+	Up   float64 `json:"up_m"`
+}
+
+// Words says what a fit's sigma counts with these position sigmas, for
+// the outputs to say it alike: "the reading noise and position
+// uncertainty (0.2 m plan, 0.15 m height)"; "the reading noise" for nil.
+func (p *PositionSigma) Words() string {
+	if p == nil {
+		return "the reading noise"
+	}
+	return fmt.Sprintf("the reading noise and position uncertainty (%s m plan, %s m height)",
+		strconv.FormatFloat(p.Plan, 'g', 3, 64), strconv.FormatFloat(p.Up, 'g', 3, 64))
+}
+
+// UncertaintyNoteFor is the Document.UncertaintyNote that Build writes
+// for fits given the position sigmas pos: SigmaNote for nil (the positions
+// taken as exact), else the same note saying that the positions'
+// uncertainty is counted too, in the fits of conductors (a magnetised
+// object's position and moment, fitted apart with the conductors held,
+// leave it out).
+func UncertaintyNoteFor(pos *PositionSigma) string {
+	if pos == nil {
+		return SigmaNote
+	}
+	return "Every fitted sigma (current_sigma_a, depth_sigma_m, phase_sigma_deg, offset, azimuth and dip " +
+		"sigmas) counts " + pos.Words() + ", as given with --position-sigma (position_sigma): each reading " +
+		"weighed by its whole variance, the field's change over that position error added to the reading noise " +
+		"(with a base-station correction, the base record's own noise too, which every survey reading taken between " +
+		"two of its readings shares); a magnetised object's position and moment sigmas, fitted apart with the " +
+		"conductors held, leave the positions' uncertainty out. " + sigmaSerial +
+		"errors in the sensor positions beyond the uncertainty given (a bias that many readings share, such as a " +
+		"shifted position fix or a wrong sensor height)" + sigmaSpread
+}
+
+// SigmaNote is the Document.UncertaintyNote that Build writes when the
+// fits took the positions as exact (no position sigmas).
 const SigmaNote = "Every fitted sigma (current_sigma_a, depth_sigma_m, phase_sigma_deg, offset, azimuth and dip " +
 	"sigmas) counts the reading noise only (with a base-station correction, the base record's own noise too, " +
-	"which every survey reading taken between two of its readings shares). For DC fits it counts that noise's " +
+	"which every survey reading taken between two of its readings shares). " + sigmaSerial +
+	"errors in the sensor positions (their scatter is counted when given with --position-sigma)" + sigmaSpread
+
+// sigmaSerial and sigmaSpread are the notes' words after what the sigmas
+// count: the serial correlation and the model's error, whose list the
+// position errors left out end, and the realistic spread.
+const sigmaSerial = "For DC fits it counts that noise's " +
 	"correlation from reading to reading along the traverse as far as the fit's residuals show it: where their lag-1 " +
 	"autocorrelation is significant every sigma is widened by the square root of (1 + rho)/(1 - rho) (the group's notes " +
 	"say so, the run warns from 1.5 times); noise correlated over many readings (1/f drift, aliased mains) can still " +
 	"leave sigmas too small. It does not count the error of the model: bends, a neighbouring " +
-	"conductor, the finite length of a real conductor against the straight infinite line fitted, errors in the " +
-	"sensor positions. Real errors are often many times larger. The route's station_scatter_current_a and " +
+	"conductor, the finite length of a real conductor against the straight infinite line fitted, "
+
+const sigmaSpread = ". Real errors are often many times larger. The route's station_scatter_current_a and " +
 	"station_scatter_depth_m, the robust scatter between neighbouring stations, are a more realistic measure " +
 	"of the spread of a single station's current and depth from station to station, but they cannot see a bias " +
 	"that neighbouring stations share (a bend, a dive or a change of current nearby moves them alike): there " +

@@ -122,6 +122,10 @@ const (
 //     its values as a property named by valueKey ("step_a" and
 //     "step_sigma_a", "cover_m", ...).
 //
+// Sigmas count the reading noise (uncertainty_note of results.json);
+// where the fits counted the positions' uncertainty too
+// (Document.PositionSigma), the collection's position_sigma gives it and
+// its sigma_note says so.
 // Sigmas are written with six significant digits, so that none is rounded
 // to zero, and each value with two digits past its sigma's leading one. A
 // sigma that is not positive (a fit that failed and left none, a quantity
@@ -146,6 +150,9 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 		fc.Note = "Coordinates are metres east and north of a local origin, not WGS84 longitude and latitude: " +
 			"the survey had no geodetic positions. RFC 7946 requires WGS84, so GIS software will misplace " +
 			"these features unless told the frame."
+	}
+	if p := d.PositionSigma; p != nil {
+		fc.SigmaNote = "Sigmas count " + p.Words() + ", as given with --position-sigma; a magnetised object's leave the positions' uncertainty out"
 	}
 	if r := d.Route; r != nil {
 		// conductor 1 named as its Points and findings name it, so that a
@@ -370,7 +377,9 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 		Origin   *Origin        `json:"local_origin,omitempty"`
 		Depth    DepthReference `json:"depth_reference"`
 		Signal   geoSignal      `json:"signal"`
-	}{SchemaVersion, Cautions, d.Warnings, fc.Frame, fc.Note, fc.Origin, d.DepthReference, d.geoSignalOf()})
+		Position *PositionSigma `json:"position_sigma,omitempty"`
+		Sigma    string         `json:"sigma_note,omitempty"`
+	}{SchemaVersion, Cautions, d.Warnings, fc.Frame, fc.Note, fc.Origin, d.DepthReference, d.geoSignalOf(), d.PositionSigma, fc.SigmaNote})
 	if err != nil {
 		return fmt.Errorf("report: GeoJSON: %w", err)
 	}
@@ -395,11 +404,15 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 }
 
 type featureCollection struct {
-	Type     string    `json:"type"`
-	Frame    string    `json:"coordinate_frame"`
-	Note     string    `json:"coordinate_note,omitempty"`
-	Origin   *Origin   `json:"local_origin,omitempty"`
-	Features []feature `json:"features"`
+	Type  string `json:"type"`
+	Frame string `json:"coordinate_frame"`
+	Note  string `json:"coordinate_note,omitempty"`
+	// SigmaNote says what the sigmas count where the fits counted the
+	// positions' uncertainty (Document.PositionSigma); empty otherwise,
+	// when they count the reading noise only.
+	SigmaNote string    `json:"sigma_note,omitempty"`
+	Origin    *Origin   `json:"local_origin,omitempty"`
+	Features  []feature `json:"features"`
 }
 
 // setFeatureIDs gives each feature an id (RFC 7946 section 3.2) made of

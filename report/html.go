@@ -68,9 +68,12 @@ type view struct {
 	Title    string
 	Headline []string
 	HowSure  string
-	// SigmaNote says that the fits' sigmas count the reading noise only;
-	// Scatter gives the between-station scatter when there is one.
+	// SigmaNote says what the fits' sigmas count (sigmaNoteHTML), and
+	// SigmaFrom, for the table of fits, what they are from: the reading
+	// noise only, or with it the positions' uncertainty given; Scatter
+	// gives the between-station scatter when there is one.
 	SigmaNote string
+	SigmaFrom string
 	Scatter   string
 	// CSVText says how results.csv and findings.csv are written and how
 	// to open them in a spreadsheet (csvText).
@@ -274,6 +277,10 @@ func newView(d *Document) (*view, error) {
 		v.InputsNA = v.InputsNA || in.Rows == 0
 	}
 	v.DepthRef = depthRefText(d)
+	v.SigmaFrom = "the reading noise only"
+	if d.PositionSigma != nil {
+		v.SigmaFrom = d.PositionSigma.Words() + ", a magnetised object's without the positions'"
+	}
 	v.CoverSigma = coverSigmaText(d)
 	v.FrameText = "local east, north, up, metres"
 	if o := d.Frame.Origin; o != nil {
@@ -374,6 +381,7 @@ var settingWords = map[string]string{
 	"time-order":          "Time order",
 	"iaga-baseline-frame": "IAGA-2002 baseline frame",
 	"drop-missing":        "Readings with missing values dropped",
+	"position-sigma":      "Position uncertainty in the fits (one sigma), m across the plan, in height",
 }
 
 // settingRows lists the options of a run for the report, each once and in
@@ -454,7 +462,25 @@ func coverSigmaText(d *Document) string {
 	if g := d.DepthReference.GroundSigma; g > 0 {
 		return fmt.Sprintf("the fitted depth uncertainties combined with %s m (one sigma) for the ground level (in quadrature)", num(g))
 	}
-	return "the fitted depth uncertainties only, which cover the reading noise; no uncertainty of the ground level was given"
+	return "the fitted depth uncertainties only, which cover " + d.PositionSigma.Words() + "; no uncertainty of the ground level was given"
+}
+
+// sigmaNoteHTML is the report's note on what the fits' ± figures count
+// (view.SigmaNote): the reading noise, and the positions' uncertainty
+// where the fits were given one (Document.PositionSigma); without, a hint
+// that --position-sigma counts the positions' scatter.
+func sigmaNoteHTML(pos *PositionSigma) string {
+	if pos == nil {
+		return "The ± figures of the fits (one standard deviation) count the reading noise only, " +
+			"not the error of the model: bends, a neighbouring conductor, the straight infinite line fitted " +
+			"to a real conductor, errors in the sensor positions (--position-sigma counts their scatter where it is known). " +
+			"Real errors are often many times larger."
+	}
+	return "The ± figures of the fits (one standard deviation) count " + pos.Words() + ", as given with --position-sigma " +
+		"(a magnetised object's leave the positions' uncertainty out), " +
+		"not the error of the model: bends, a neighbouring conductor, the straight infinite line fitted " +
+		"to a real conductor, errors in the sensor positions beyond the uncertainty given (a shift that many readings share). " +
+		"Real errors are often many times larger."
 }
 
 func valueText(x Value) string {
@@ -1248,21 +1274,25 @@ func (v *view) summarise() {
 		}
 	}
 	if len(curSig) > 0 {
-		v.SigmaNote = "The ± figures of the fits (one standard deviation) count the reading noise only, " +
-			"not the error of the model: bends, a neighbouring conductor, the straight infinite line fitted " +
-			"to a real conductor, errors in the sensor positions. Real errors are often many times larger."
-		noise := "the reading noise"
+		v.SigmaNote = sigmaNoteHTML(d.PositionSigma)
+		noise := d.PositionSigma.Words()
 		if d.BaseStation != nil {
 			// The base record's own noise is in the fits' sigmas
 			// (cmd/undercurrent basenoise.go).
 			v.SigmaNote += " With the base-station correction they count the base record's own noise too, which every reading taken between two of its readings shares."
 			noise = "the reading noise and the base station's"
+			if p := d.PositionSigma; p != nil {
+				noise = "the reading noise, the base station's" + strings.TrimPrefix(p.Words(), "the reading noise")
+			}
 		}
 		what := "current"
 		if d.Route != nil && d.Route.PairNet {
 			what = "the pair's net current"
 		}
-		v.HowSure = fmt.Sprintf("Fit uncertainty (one standard deviation from %s only, median over the fits): %s ± %s A (%s %%), depth ± %s m. Plots show ± two of these standard deviations.",
+		if d.PositionSigma == nil {
+			noise += " only"
+		}
+		v.HowSure = fmt.Sprintf("Fit uncertainty (one standard deviation from %s, median over the fits): %s ± %s A (%s %%), depth ± %s m. Plots show ± two of these standard deviations.",
 			noise, what, sigText(median(curSig)), sigText(100*median(curRel)), sigText(median(depSig)))
 	}
 	if ok < len(d.Groups) {

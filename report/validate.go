@@ -35,6 +35,9 @@ func (d *Document) Validate() error {
 	if g := d.DepthReference.GroundSigma; g < 0 || math.IsNaN(g) || math.IsInf(g, 0) {
 		return fmt.Errorf("report: depth_reference.ground_sigma_m %g is not a length >= 0", g)
 	}
+	if p := d.PositionSigma; p != nil && !(p.Plan >= 0 && p.Up >= 0 && p.Plan+p.Up > 0) {
+		return fmt.Errorf("report: position_sigma (%g m plan, %g m up) is not two lengths >= 0, not both 0", p.Plan, p.Up)
+	}
 	switch d.Signal.Mode {
 	case SignalDC, SignalAC:
 	default:

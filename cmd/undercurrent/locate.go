@@ -357,6 +357,12 @@ func (o *locateOptions) check(fs *pflag.FlagSet) error {
 				if f.Name == "sensor-height" {
 					v = heightsGiven(o.sensorHeights)
 				}
+				if f.Name == "position-sigma" {
+					// Both values, as numbers: "0.2,0.2" for
+					// --position-sigma .2 (results.json's
+					// position_sigma gives them too).
+					v = strconv.FormatFloat(o.posPlan, 'g', -1, 64) + "," + strconv.FormatFloat(o.posUp, 'g', -1, 64)
+				}
 				o.given[f.Name] = v
 			}
 		})
@@ -3288,6 +3294,11 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration, walked 
 			ref, height, doc.DepthReference.SensorHeight, map[bool]string{true: "RMS with phase angle (∠, " + report.PhaseWords(doc.Signal) + ")", false: "DC"}[doc.Signal.Mode == report.SignalAC])
 	default:
 		fmt.Fprintf(w, "cover is the depth %s; currents %s, one-sigma uncertainties\n", ref, map[bool]string{true: "RMS with phase angle (∠, " + report.PhaseWords(doc.Signal) + ")", false: "DC"}[doc.Signal.Mode == report.SignalAC])
+	}
+	if p := doc.PositionSigma; p != nil {
+		// The sigmas count the positions' uncertainty too (results.json's
+		// position_sigma and uncertainty_note, report.html say so).
+		fmt.Fprintf(w, "uncertainties count %s, as given with --position-sigma\n", p.Words())
 	}
 	if robustGroups(doc) > 0 {
 		// The sigmas of Huber-weighted fits are large-sample ones (the
