@@ -122,6 +122,9 @@ type StepNear struct {
 	// the misfit over the noise against the misfit the step's field
 	// would leave, at most 1.
 	Seen float64
+	// Beside is true when the step is on another conductor beside the
+	// station's (Route.WidenForStepsBeside).
+	Beside bool
 	// FitCurrentSigma and FitDepthSigma are the sigmas before,
 	// CurrentSigma and DepthSigma after (A, m).
 	FitCurrentSigma, FitDepthSigma float64
@@ -412,6 +415,10 @@ func (sn *StepNear) WidenDepth(sigma, depth float64) float64 {
 
 // StepNote words a StepNear for a group's notes.
 func StepNote(sn *StepNear) string {
+	if sn.Beside {
+		return fmt.Sprintf("current and depth uncertainties widened for the change of current on a conductor beside this one, %.3g m along it (a step of %.3g A, whose field the straight lines fitted do not model; the fit's own sigmas: current %s A, depth %s m)",
+			sn.Distance, sn.Step, SigmaText(sn.FitCurrentSigma), SigmaText(sn.FitDepthSigma))
+	}
 	return fmt.Sprintf("current and depth uncertainties widened for the change of current %.3g m along the conductor (a step of %.3g A, whose field one straight line does not model; the fit's own sigmas: current %s A, depth %s m)",
 		sn.Distance, sn.Step, SigmaText(sn.FitCurrentSigma), SigmaText(sn.FitDepthSigma))
 }
