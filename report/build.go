@@ -484,6 +484,7 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 	} else {
 		caveatNeighbourTrades(r, tracks)
 		trackEnds(r, tracks, rs)
+		widenBesideSteps(r, tracks)
 	}
 	d.SetRoute(r)
 	fixedFailedFindings(&d, fits, r)

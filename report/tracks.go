@@ -885,3 +885,87 @@ func trackLine(g *Group, n int) *Source {
 	}
 	return line
 }
+
+// widenBesideSteps widens the sigmas of conductor 1's stations (r) for
+// the current steps found on the further conductors' tracks beside it
+// (route.Route.WidenForStepsBeside), as each track's own stations are
+// widened for its steps: a step's field biases the fits of both lines at
+// the traverses near it. Each step is placed on r by the stations the
+// two routes share (its location's sigma about it, within its bracket),
+// with the track's current, depth and offset across r at its bracketing
+// stations. Go-and-return pairs' tracks are left (a pair's net current
+// stands for two lines).
+func widenBesideSteps(r *route.Route, tracks []builtTrack) {
+	if r == nil {
+		return
+	}
+	at := make(map[string]*route.Placed, len(r.Stations))
+	for k := range r.Stations {
+		at[r.Stations[k].Key] = &r.Stations[k]
+	}
+	var steps []route.StepBeside
+	for _, t := range tracks {
+		if t.pair || t.route == nil {
+			continue
+		}
+		ts := t.route.Stations
+		var xs, cs []float64 // the track's chainage and r's, at the stations both have
+		byKey := map[string]*route.Placed{}
+		for k := range ts {
+			byKey[ts[k].Key] = &ts[k]
+			if p := at[ts[k].Key]; p != nil && (len(xs) == 0 || ts[k].Chainage > xs[len(xs)-1]) {
+				xs, cs = append(xs, ts[k].Chainage), append(cs, p.Chainage)
+			}
+		}
+		if len(xs) < 2 {
+			continue
+		}
+		onR := func(x float64) float64 {
+			i := sort.SearchFloat64s(xs, x)
+			i = min(max(i, 1), len(xs)-1)
+			return cs[i-1] + (x-xs[i-1])*(cs[i]-cs[i-1])/(xs[i]-xs[i-1])
+		}
+		for _, f := range t.route.Findings {
+			if f.Kind != route.KindCurrentStep || len(f.Keys) < 2 {
+				continue
+			}
+			var dI, loc, locSigma float64
+			hasLoc := false
+			for _, v := range f.Values {
+				switch v.Name {
+				case "step":
+					dI = math.Abs(v.Value)
+				case "location (chainage)":
+					loc, locSigma, hasLoc = v.Value, math.Abs(v.Sigma), finite(v.Value)
+				}
+			}
+			a, b := byKey[f.Keys[0]], byKey[f.Keys[len(f.Keys)-1]]
+			if !(dI > 0) || a == nil || b == nil || at[a.Key] == nil || at[b.Key] == nil {
+				continue
+			}
+			lo, hi := f.From, f.To
+			if hasLoc {
+				lo, hi = math.Max(loc-locSigma, f.From), math.Min(loc+locSigma, f.To)
+				if lo > hi {
+					lo, hi = loc, loc
+				}
+			}
+			lo, hi = onR(lo), onR(hi)
+			if lo > hi {
+				lo, hi = hi, lo
+			}
+			var off, below float64
+			for _, q := range []*route.Placed{a, b} {
+				p := at[q.Key]
+				u := math.Hypot(p.Dir[0], p.Dir[1])
+				if u > 0 {
+					off += math.Abs((q.Point[0]-p.Point[0])*p.Dir[1]/u-(q.Point[1]-p.Point[1])*p.Dir[0]/u) / 2
+				}
+				below += (q.Depth - p.Depth) / 2
+			}
+			steps = append(steps, route.StepBeside{Lo: lo, Hi: hi, DI: dI,
+				Current: math.Max(math.Abs(a.Current), math.Abs(b.Current)), Below: below, Offset: off})
+		}
+	}
+	r.WidenForStepsBeside(steps)
+}

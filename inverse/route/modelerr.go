@@ -122,6 +122,9 @@ type StepNear struct {
 	// the misfit over the noise against the misfit the step's field
 	// would leave, at most 1.
 	Seen float64
+	// Beside is true when the step is on another conductor beside the
+	// station's (Route.WidenForStepsBeside).
+	Beside bool
 	// FitCurrentSigma and FitDepthSigma are the sigmas before,
 	// CurrentSigma and DepthSigma after (A, m).
 	FitCurrentSigma, FitDepthSigma float64
@@ -288,22 +291,37 @@ func stepSeen(p *Placed, pred float64) float64 {
 // the readings' reach, blanket (review rg25a), every station of a tee
 // was widened, some 47 times, its fits downstream (already within 0.01
 // A) among them, and the z of the 51 fits of three seeds spread by only
-// 0.6. The step is placed at its location when the finding gives one,
-// else midway across its bracket.
+// 0.6. The step is placed anywhere within its location's sigma, where
+// the finding gives one (within its bracket), else midway across its
+// bracket, and each station is widened as for the nearest place: two
+// losses 13 m apart (7 A and 6 A) found as one step "most likely at 103
+// ± 13 m" left the station 3 m past the second, 17.5 m from the
+// location's centre, unwidened and 1.7-3.2 sigma high on six runs,
+// while one 37.5 m off was widened (review rg26a, s4 and s7).
 func stepDoubt(ps []Placed, steps []Finding) {
-	type st struct{ at, dI float64 }
+	type st struct{ lo, hi, dI float64 } // the step's place, lo to hi, and size
 	var ss []st
 	for i := range steps {
 		f := &steps[i]
 		if f.Kind != KindCurrentStep {
 			continue
 		}
-		s := st{at: (f.From + f.To) / 2}
+		mid := (f.From + f.To) / 2
+		s := st{lo: mid, hi: mid}
 		for _, v := range f.Values {
 			switch v.Name {
 			case "location (chainage)":
 				if finite(v.Value) {
-					s.at = v.Value
+					s.lo, s.hi = v.Value, v.Value
+					if sg := math.Abs(v.Sigma); finite(sg) && sg > 0 {
+						s.lo, s.hi = v.Value-sg, v.Value+sg
+						if f.To > f.From {
+							s.lo, s.hi = math.Max(s.lo, f.From), math.Min(s.hi, f.To)
+						}
+						if s.lo > s.hi { // a location outside its bracket: its own
+							s.lo, s.hi = v.Value, v.Value
+						}
+					}
 				}
 			case "step":
 				s.dI = math.Abs(v.Value)
@@ -328,7 +346,7 @@ func stepDoubt(ps []Placed, steps []Finding) {
 		}
 		var best *StepNear
 		for _, s := range ss {
-			d := math.Abs(p.Chainage - s.at)
+			d := math.Max(0, math.Max(s.lo-p.Chainage, p.Chainage-s.hi))
 			dc, dd, pred := stepBias(reach, d, s.dI, cur)
 			seen := stepSeen(p, pred)
 			sn := &StepNear{Step: s.dI, Distance: d, Seen: seen,
@@ -340,36 +358,47 @@ func stepDoubt(ps []Placed, steps []Finding) {
 				best = sn
 			}
 		}
-		// Under 0.3 of the fit's own sigma widens it by under 5%: left.
-		// Past StepReachDepths depths from the step an error under the
-		// fit's own sigma is left too: the demo's feeder had stations up
-		// to 88 m (70 depths) from its step widened 10-30% by terms of
-		// 0.0013-0.0018 A on 42 A, beyond what a fit's straight line
-		// is held to; within reach, or with an error at least the
-		// sigma, the station is widened.
-		if best == nil || !(best.Share*cur > 0.3*p.CurrentSigma) {
+		if !widenForStep(p, best, p.CurrentSigma, p.DepthSigma) {
 			continue
 		}
-		if best.Distance > StepReachDepths*math.Abs(p.Depth) && !(best.Share*cur >= p.CurrentSigma) {
-			continue
-		}
-		// A fit widened for its misfit (modelDoubt) already counts the
-		// step's field its misfit shows: the step's error widens it only
-		// by what it adds to the misfit's, ModelErrFactor Share.
-		if md := p.Model; md != nil {
-			mc, mdp := ModelErrFactor*md.Share, ModelErrFactor*md.Share
-			if best.Share <= mc && best.DepthShare <= mdp {
-				continue
-			}
-			best.Share = math.Sqrt(math.Max(0, best.Share*best.Share-mc*mc))
-			best.DepthShare = math.Sqrt(math.Max(0, best.DepthShare*best.DepthShare-mdp*mdp))
-		}
-		best.FitCurrentSigma, best.FitDepthSigma = p.CurrentSigma, p.DepthSigma
-		best.CurrentSigma = best.Widen(p.CurrentSigma, p.Current)
-		best.DepthSigma = best.WidenDepth(p.DepthSigma, p.Depth)
 		p.CurrentSigma, p.DepthSigma = best.CurrentSigma, best.DepthSigma
 		p.StepNear = best
 	}
+}
+
+// widenForStep sets best's sigmas (and the fit's own it widens, sigma
+// and depthSigma) for station p, as stepDoubt widens a station: false
+// when the step's error is too small beside the fit's sigma to widen it.
+func widenForStep(p *Placed, best *StepNear, sigma, depthSigma float64) bool {
+	// Under 0.3 of the fit's own sigma widens it by under 5%: left.
+	// Past StepReachDepths depths from the step an error under the
+	// fit's own sigma is left too: the demo's feeder had stations up
+	// to 88 m (70 depths) from its step widened 10-30% by terms of
+	// 0.0013-0.0018 A on 42 A, beyond what a fit's straight line
+	// is held to; within reach, or with an error at least the
+	// sigma, the station is widened.
+	cur := math.Abs(p.Current)
+	if best == nil || !(best.Share*cur > 0.3*sigma) {
+		return false
+	}
+	if best.Distance > StepReachDepths*math.Abs(p.Depth) && !(best.Share*cur >= sigma) {
+		return false
+	}
+	// A fit widened for its misfit (modelDoubt) already counts the
+	// step's field its misfit shows: the step's error widens it only
+	// by what it adds to the misfit's, ModelErrFactor Share.
+	if md := p.Model; md != nil {
+		mc, mdp := ModelErrFactor*md.Share, ModelErrFactor*md.Share
+		if best.Share <= mc && best.DepthShare <= mdp {
+			return false
+		}
+		best.Share = math.Sqrt(math.Max(0, best.Share*best.Share-mc*mc))
+		best.DepthShare = math.Sqrt(math.Max(0, best.DepthShare*best.DepthShare-mdp*mdp))
+	}
+	best.FitCurrentSigma, best.FitDepthSigma = sigma, depthSigma
+	best.CurrentSigma = best.Widen(sigma, p.Current)
+	best.DepthSigma = best.WidenDepth(depthSigma, p.Depth)
+	return true
 }
 
 // Widen is a current's sigma as sn widens it: Share of the current in
@@ -386,6 +415,10 @@ func (sn *StepNear) WidenDepth(sigma, depth float64) float64 {
 
 // StepNote words a StepNear for a group's notes.
 func StepNote(sn *StepNear) string {
+	if sn.Beside {
+		return fmt.Sprintf("current and depth uncertainties widened for the change of current on a conductor beside this one, %.3g m along it (a step of %.3g A, whose field the straight lines fitted do not model; the fit's own sigmas: current %s A, depth %s m)",
+			sn.Distance, sn.Step, SigmaText(sn.FitCurrentSigma), SigmaText(sn.FitDepthSigma))
+	}
 	return fmt.Sprintf("current and depth uncertainties widened for the change of current %.3g m along the conductor (a step of %.3g A, whose field one straight line does not model; the fit's own sigmas: current %s A, depth %s m)",
 		sn.Distance, sn.Step, SigmaText(sn.FitCurrentSigma), SigmaText(sn.FitDepthSigma))
 }
