@@ -603,14 +603,14 @@ func dirOf(cps []chainPair) float64 {
 	return 1
 }
 
+// zOf is d over its sigma s; 0 where s is not positive (a quantity held,
+// not estimated: its change is not judged against a sigma), so that the
+// JSON holds no infinity.
 func zOf(d, s float64) float64 {
-	if s > 0 {
+	if s > 0 && !math.IsInf(s, 0) {
 		return d / s
 	}
-	if d == 0 {
-		return 0
-	}
-	return math.Inf(int(math.Copysign(1, d)))
+	return 0
 }
 
 // weightedMean returns the inverse-variance mean of v with sigmas sg,
@@ -862,11 +862,11 @@ func (c *Comparison) listChanges() {
 		}
 		if len(cc.OldOnly) > 0 {
 			c.Changes = append(c.Changes, Change{Kind: "station-unmatched", Conductor: cc.Old, Groups: cc.OldOnly,
-				Message: fmt.Sprintf("%sOLD's stations %s have no partner in NEW within %g m", who, strings.Join(cc.OldOnly, ", "), c.ToleranceM)})
+				Message: fmt.Sprintf("%sOLD's stations %s have no partner among NEW's used stations within %g m (none was surveyed there, or its fit was left out of the route)", who, strings.Join(cc.OldOnly, ", "), c.ToleranceM)})
 		}
 		if len(cc.NewOnly) > 0 {
 			c.Changes = append(c.Changes, Change{Kind: "station-unmatched", Conductor: cc.Old, Groups: cc.NewOnly,
-				Message: fmt.Sprintf("%sNEW's stations %s have no partner in OLD within %g m", who, strings.Join(cc.NewOnly, ", "), c.ToleranceM)})
+				Message: fmt.Sprintf("%sNEW's stations %s have no partner among OLD's used stations within %g m (none was surveyed there, or its fit was left out of the route)", who, strings.Join(cc.NewOnly, ", "), c.ToleranceM)})
 		}
 	}
 }

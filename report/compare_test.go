@@ -351,3 +351,32 @@ func TestCompareReprojectsOrigin(t *testing.T) {
 		t.Errorf("change in an unchanged survey: %s", ch.Message)
 	}
 }
+
+// TestCompareHeldSigmaJSON: a station whose current and cover sigmas are 0
+// (held, not estimated) gave a z-score of ±Inf, which encoding/json
+// refuses: the JSON is written, the change not judged against a sigma.
+func TestCompareHeldSigmaJSON(t *testing.T) {
+	old, nd := fenwickLane(false), fenwickLane(false)
+	for _, d := range []*Document{old, nd} {
+		s := &d.Route.Stations[2]
+		s.CurrentSigma, s.DepthSigma = 0, 0
+		if s.CoverSigma != nil {
+			z := 0.0
+			s.CoverSigma = &z
+		}
+	}
+	nd.Route.Stations[2].Current += 5
+	c, err := Compare(old, nd, "a", "b", CompareSettings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	var b bytes.Buffer
+	if err := WriteComparisonJSON(&b, c); err != nil {
+		t.Fatalf("JSON with a held sigma: %v", err)
+	}
+	for _, s := range c.Conductors[0].Stations {
+		if s.OldKey == old.Route.Stations[2].Key && (s.CurrentZ != 0 || s.CurrentFlag) {
+			t.Errorf("%s: z %g, flagged %v, want a change not judged against a sigma of 0", s.OldKey, s.CurrentZ, s.CurrentFlag)
+		}
+	}
+}
