@@ -1,0 +1,192 @@
+package main
+
+import (
+	"bufio"
+	"bytes"
+	"context"
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+
+	"github.com/spf13/pflag"
+
+	"undercurrent/report"
+)
+
+// compareCSVHead is how a CSV that compare wrote begins: -o replaces only
+// such a file.
+const compareCSVHead = "conductor,old_key,new_key,"
+
+func init() {
+	var set report.CompareSettings
+	var asJSON bool
+	var out string
+	register(&command{
+		name:    "compare",
+		usage:   "[flags] OLD NEW",
+		summary: "compare two surveys of one route: changes of current, losses and cover",
+		long: `Compare reads two locate results of one route walked at two times (OLD and
+NEW: each a result directory, as locate -o DIR or demo -o DIR writes it, or
+its results.json) and says what changed between them: where the current
+changed and where a loss (a current-step finding) is new, has grown, shrunk
+or gone, where the depth of cover changed (erosion, re-grading, a conductor
+re-laid: "now under the minimum cover" where it was not before), and
+whether the current along the route changed overall.
+
+Stations of conductor 1 are matched by chainage when both routes measure
+it from one place (their matched points lie within --tolerance in plan),
+else by their position in plan; further conductors by their offset from
+conductor 1 (within --tolerance) and their azimuth (within 20 degrees).
+Stations and conductors without a partner are listed. Two surveys placed
+about different geodetic origins (logs with latitude and longitude each
+placed about their own first reading) are brought into OLD's frame; one
+placed about an origin and one in local metres only are refused.
+
+Each matched station's change of current and of cover (depth below the
+sensors where not both give the cover) has the two surveys' sigmas in
+quadrature, sqrt(s1^2 + s2^2), and a z-score. A change is flagged only
+when it is beyond --sigmas standard deviations AND beyond the practical
+threshold (--min-current-change, --min-cover-change): the fits' sigmas
+count the reading noise only, so on a quiet survey a change of a few
+milliamps or millimetres is many sigmas and still means nothing on the
+ground, while a threshold alone would flag the noise of a poorly determined
+station.
+
+A transmitter or CP rectifier set differently changes every current by one
+factor. The ratio NEW/OLD along the route is tested for that: its level (the
+weighted mean of the stations that agree with the median ratio) and the most
+significant single step in it. When the level differs from 1 beyond both
+thresholds the station changes are measured beyond it (NEW - level x OLD),
+so a re-set rectifier is not read as a loss at every station; a step in the
+ratio is a loss that changed there. AC phases are not compared (they are
+not comparable between two walks).
+
+Prints a table of the matched stations (flagged changes marked *), the
+ratio, the current steps and a list of what changed, with the safety
+cautions; --json prints one JSON object instead (stable keys, the cautions
+first); -o FILE.csv also writes one row per matched station. Exits 0 when
+the comparison was made, whatever it found; 1 when it cannot be (modes DC
+and AC, different AC frequencies, no route, no station in common, one file
+geo-referenced and the other not: the message names both files and what
+differs).
+
+Examples (after the README's "Comparing two surveys", which writes the
+result directories a, b, results and results2):
+  undercurrent compare a b
+  undercurrent compare results results2
+  undercurrent compare --json results results2 > changes.json
+  undercurrent compare --min-current-change 0.05 --min-cover-change 0.15 results results2 -o changes.csv`,
+		setFlags: func(fs *pflag.FlagSet) {
+			fs.Float64Var(&set.MinCurrentChange, "min-current-change", 0, "flag a change of current only from `A` amperes (0: 5% of OLD's median current on each conductor)")
+			fs.Float64Var(&set.MinCoverChange, "min-cover-change", report.DefaultMinCoverChange, "flag a change of cover (or depth) only from `M` metres")
+			fs.Float64Var(&set.Sigmas, "sigmas", report.DefaultCompareSigmas, "flag a change only beyond `K` combined standard deviations")
+			fs.Float64Var(&set.Tolerance, "tolerance", report.DefaultTolerance, "stations within `M` metres (along the route, or in plan) are one station")
+			fs.BoolVar(&asJSON, "json", false, "print the comparison as one JSON object instead of the table")
+			fs.StringVarP(&out, "output", "o", "", "also write one row per matched station to CSV `FILE` (.csv); an existing FILE is replaced only when compare wrote it")
+		},
+		run: func(ctx context.Context, fs *pflag.FlagSet, args []string, stdout, stderr io.Writer) error {
+			if len(args) != 2 {
+				return usageErrorf("compare takes two results, OLD and NEW (got %d arguments)", len(args))
+			}
+			for _, f := range []struct {
+				name string
+				v    float64
+				pos  bool
+			}{{"--min-current-change", set.MinCurrentChange, false}, {"--min-cover-change", set.MinCoverChange, true}, {"--sigmas", set.Sigmas, true}, {"--tolerance", set.Tolerance, true}} {
+				if f.v < 0 || f.pos && f.v == 0 || f.v != f.v {
+					return usageErrorf("%s %g: must be a positive number", f.name, f.v)
+				}
+			}
+			if out != "" {
+				if err := checkCompareOut(out, args); err != nil {
+					return err
+				}
+			}
+			oldDoc, oldName, err := readCompared(args[0])
+			if err != nil {
+				return err
+			}
+			newDoc, newName, err := readCompared(args[1])
+			if err != nil {
+				return err
+			}
+			c, err := report.Compare(oldDoc, newDoc, oldName, newName, set)
+			if err != nil {
+				return err
+			}
+			if out != "" {
+				tmp, err := stageFile(out, ".csv", func(w io.Writer) error { return report.WriteComparisonCSV(w, c) })
+				if err != nil {
+					return err
+				}
+				if err := placeFile(tmp, out, true); err != nil {
+					return writeError(out, tmp, err)
+				}
+			}
+			if asJSON {
+				return report.WriteComparisonJSON(stdout, c)
+			}
+			return report.WriteComparisonText(stdout, c)
+		},
+	})
+}
+
+// readCompared reads a result document from path: a results.json, or a
+// result directory holding one. It returns the document and the file's
+// name.
+func readCompared(path string) (*report.Document, string, error) {
+	name := path
+	if fi, err := os.Stat(path); err == nil && fi.IsDir() {
+		name = filepath.Join(path, "results.json")
+		if _, err := os.Stat(name); err != nil {
+			return nil, "", fmt.Errorf("%s: a directory without results.json: give a result directory as locate -o DIR writes it, or a results.json", path)
+		}
+	}
+	f, err := os.Open(name)
+	if err != nil {
+		return nil, "", err
+	}
+	defer f.Close()
+	d, err := report.ReadJSON(bufio.NewReader(f), name)
+	if err != nil {
+		var pe *os.PathError
+		if errors.As(err, &pe) {
+			return nil, "", err
+		}
+		return nil, "", fmt.Errorf("%s: not a result document that locate writes: %w", name, err)
+	}
+	return d, name, nil
+}
+
+// checkCompareOut checks -o FILE before any work: a .csv name in a
+// directory that exists, not an input, and replacing only a file compare
+// wrote.
+func checkCompareOut(out string, ins []string) error {
+	if filepath.Ext(out) != ".csv" {
+		return usageErrorf("-o %s: give a .csv file's name", out)
+	}
+	if err := checkOutFile("-o", out, false); err != nil {
+		return err
+	}
+	for _, in := range ins {
+		if sameFile(in, out) || sameFile(filepath.Join(in, "results.json"), out) {
+			return usageErrorf("-o %s is an input", out)
+		}
+	}
+	fi, err := existingOut("-o", out, "a file's name")
+	if err != nil || fi == nil || fi.Size() == 0 {
+		return err
+	}
+	b := make([]byte, len(compareCSVHead))
+	f, err := os.Open(out)
+	if err == nil {
+		_, err = io.ReadFull(f, b)
+		f.Close()
+	}
+	if err != nil || !bytes.Equal(b, []byte(compareCSVHead)) {
+		return usageErrorf("-o %s: the file exists and is not a table compare wrote: it is not replaced; choose another name", out)
+	}
+	return nil
+}
