@@ -406,7 +406,11 @@ func (f *fitter) positionWeights(c *candidate) (string, error) {
 	if k := c.rss / float64(dof) / s2; !known && k < positionRatioLow {
 		note += fmt.Sprintf("; the readings miss the fit by %.2g times what the noise from their differences and the position scatter taken explain, and the uncertainties are narrowed by that ratio", math.Sqrt(k))
 	} else if !known && k > positionRatioHigh {
-		note += fmt.Sprintf("; the readings miss the fit by %.2g times what the noise and the full position sigmas given explain: the position sigmas may be too small, or the model misses, and the uncertainties are widened by that ratio", math.Sqrt(k))
+		what := "the full position sigmas given"
+		if hp < 0.95*plan || hu < 0.95*up {
+			what = "the position scatter taken"
+		}
+		note += fmt.Sprintf("; the readings miss the fit by %.2g times what the noise and %s explain: the position sigmas may be too small, or the model misses, and the uncertainties are widened by that ratio", math.Sqrt(k), what)
 	}
 	return note, nil
 }
