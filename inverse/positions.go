@@ -70,6 +70,10 @@ const positionStep = 1e-3
 // each reading's variance.
 const PositionSigmaNote = "position uncertainty in the reading variances"
 
+// PositionSystematicNote ends the note of a fit with position sigmas whose
+// residuals are correlated from reading to reading (SerialNotePrefix).
+const PositionSystematicNote = "the residuals are correlated from reading to reading: position errors that are not independent from reading to reading (a shifted traverse, a drift, a chainage that stretches) are not this model, and the position sigmas neither cover nor mend them; check the positioning against marks"
+
 // PositionSigmaRobustNote is the note of a fit given position sigmas and
 // Robust: the position sigmas were not used.
 const PositionSigmaRobustNote = "position sigmas not used with robust (Huber) weights"
@@ -78,6 +82,62 @@ const PositionSigmaRobustNote = "position sigmas not used with robust (Huber) we
 // uncertainty.
 func (s *Settings) positioned() bool {
 	return s.PositionSigmaPlan > 0 || s.PositionSigmaUp > 0
+}
+
+// positionParts are the terms of positionVariance at the position sigmas
+// given, per element of the separable's residuals (a reading axis, and
+// part for AC): g the gradient times the sigma of each axis (east, north,
+// up), h the curvature H_jj times its sigma squared, x the cross terms
+// H_jk s_j s_k of the pairs (east, north), (east, up), (north, up). A
+// scatter of sigma sqrt(t_j) s_j gives from them (scales)
+//
+//	variance sum_j t_j g_j^2 + 1/2 sum_j t_j^2 h_j^2 + sum_jk t_j t_k x_jk^2
+//	mean     sum_j t_j h_j / 2
+//
+// so that the scatter's size can be taken from the residuals without
+// evaluating the model again (positionScale).
+type positionParts struct {
+	g, h, x [][3]float64
+	nr      int
+}
+
+// at returns the variance and the mean of element i at variance scales
+// tp across the plan and tu in height.
+func (pp *positionParts) at(i int, tp, tu float64) (v, mean float64) {
+	t := [3]float64{tp, tp, tu}
+	g, h, x := pp.g[i], pp.h[i], pp.x[i]
+	for j := range 3 {
+		v += t[j]*g[j]*g[j] + t[j]*t[j]*h[j]*h[j]/2
+		mean += t[j] * h[j] / 2
+	}
+	v += t[0]*t[1]*x[0]*x[0] + t[0]*t[2]*x[1]*x[1] + t[1]*t[2]*x[2]*x[2]
+	return v, mean
+}
+
+// scaled returns, at variance scales tp and tu, the variance per row (the
+// mean over its parts: the weights are per row), the mean change per
+// element (bias), and the gradient's shares and the curvature's variance
+// per element, for positionSandwich.
+func (pp *positionParts) scaled(tp, tu float64) (g2, bias []float64, grad [][3]float64, curv []float64) {
+	n, nr := len(pp.g), pp.nr
+	m := n / nr
+	g2 = make([]float64, m)
+	bias = make([]float64, n)
+	grad = make([][3]float64, n)
+	curv = make([]float64, n)
+	s := [3]float64{math.Sqrt(tp), math.Sqrt(tp), math.Sqrt(tu)}
+	for i := range n {
+		v, b := pp.at(i, tp, tu)
+		bias[i] = b
+		g2[i/nr] += v / float64(nr)
+		c := v
+		for j := range 3 {
+			grad[i][j] = pp.g[i][j] * s[j]
+			c -= grad[i][j] * grad[i][j]
+		}
+		curv[i] = c
+	}
+	return g2, bias, grad, curv
 }
 
 // positionVariance returns, per row of the separable (a reading axis),
@@ -99,8 +159,19 @@ func (s *Settings) positioned() bool {
 // gradient times s, each axis's share of the first term, and curv the
 // second term, for positionSandwich.
 func (sp *separable) positionVariance(x []float64, plan, up float64) (g2, bias []float64, grad [][3]float64, curv []float64, err error) {
-	if err := sp.evaluate(x); err != nil {
+	pp, err := sp.positionParts(x, plan, up)
+	if err != nil {
 		return nil, nil, nil, nil, err
+	}
+	g2, bias, grad, curv = pp.scaled(1, 1)
+	return g2, bias, grad, curv, nil
+}
+
+// positionParts returns the terms of positionVariance at the fit x for
+// the sigmas plan and up.
+func (sp *separable) positionParts(x []float64, plan, up float64) (*positionParts, error) {
+	if err := sp.evaluate(x); err != nil {
+		return nil, err
 	}
 	m, nr := sp.m, sp.nrhs
 	n := m * nr
@@ -112,8 +183,9 @@ func (sp *separable) positionVariance(x []float64, plan, up float64) (g2, bias [
 	}
 	f0, err := at([3]float64{})
 	if err != nil {
-		return nil, nil, nil, nil, err
+		return nil, err
 	}
+	pp := &positionParts{g: make([][3]float64, n), h: make([][3]float64, n), x: make([][3]float64, n), nr: nr}
 	var fp, fm [3][]float64
 	for j := range 3 {
 		if !(sig[j] > 0) {
@@ -122,63 +194,45 @@ func (sp *separable) positionVariance(x []float64, plan, up float64) (g2, bias [
 		var d [3]float64
 		d[j] = h
 		if fp[j], err = at(d); err != nil {
-			return nil, nil, nil, nil, err
+			return nil, err
 		}
 		d[j] = -h
 		if fm[j], err = at(d); err != nil {
-			return nil, nil, nil, nil, err
+			return nil, err
 		}
 	}
-	v := make([]float64, n)
-	bias = make([]float64, n)
-	grad = make([][3]float64, n)
+	pair := 0
 	for j := range 3 {
 		if !(sig[j] > 0) {
+			pair += 2 - j
 			continue
 		}
 		for i := range n {
-			g := (fp[j][i] - fm[j][i]) / (2 * h) * sig[j]
-			hjj := (fp[j][i] + fm[j][i] - 2*f0[i]) / (h * h) * sig[j] * sig[j]
-			v[i] += g*g + hjj*hjj/2
-			bias[i] += hjj / 2
-			grad[i][j] = g
+			pp.g[i][j] = (fp[j][i] - fm[j][i]) / (2 * h) * sig[j]
+			pp.h[i][j] = (fp[j][i] + fm[j][i] - 2*f0[i]) / (h * h) * sig[j] * sig[j]
 		}
-		for k := j + 1; k < 3; k++ {
+		for k := j + 1; k < 3; k, pair = k+1, pair+1 {
 			if !(sig[k] > 0) {
 				continue
 			}
-			var pp, pm, mp, mm []float64
+			var dpp, dpm, dmp, dmm []float64
 			for _, c := range []struct {
 				a, b float64
 				out  *[]float64
-			}{{h, h, &pp}, {h, -h, &pm}, {-h, h, &mp}, {-h, -h, &mm}} {
+			}{{h, h, &dpp}, {h, -h, &dpm}, {-h, h, &dmp}, {-h, -h, &dmm}} {
 				var d [3]float64
 				d[j], d[k] = c.a, c.b
 				if *c.out, err = at(d); err != nil {
-					return nil, nil, nil, nil, err
+					return nil, err
 				}
 			}
 			for i := range n {
-				hjk := (pp[i] - pm[i] - mp[i] + mm[i]) / (4 * h * h) * sig[j] * sig[k]
-				v[i] += hjk * hjk // the two terms jk and kj of the sum
+				// Squared once in at: the two terms jk and kj of the sum.
+				pp.x[i][pair] = (dpp[i] - dpm[i] - dmp[i] + dmm[i]) / (4 * h * h) * sig[j] * sig[k]
 			}
 		}
 	}
-	curv = make([]float64, n)
-	for i := range n {
-		curv[i] = v[i]
-		for j := range 3 {
-			curv[i] -= grad[i][j] * grad[i][j]
-		}
-	}
-	g2 = make([]float64, m)
-	for row := range m {
-		for k := range nr {
-			g2[row] += v[row*nr+k]
-		}
-		g2[row] /= float64(nr)
-	}
-	return g2, bias, grad, curv, nil
+	return pp, nil
 }
 
 // modelShifted writes into out (m x nrhs, row-major) the model's field at
@@ -226,13 +280,17 @@ func (sp *separable) modelShifted(d [3]float64, out []float64) error {
 // by the inverse of its variance, the reading noise's and what the
 // positions' uncertainty adds (positionVariance), to a fixed point: the
 // weights s^2/(s^2 + g^2) (sqrt of them in the separable, as the robust
-// weights), s the given Problem.Sigma, or the readings' noise from their
-// differences (noiseFloor), or else the reading noise that makes the
-// residuals r of the last fit consistent with their variances, the root of
-// sum r^2/(s^2 + g^2) = DOF (noiseWithPositions). The readings are
-// corrected by the mean change the scatter makes (bias) at each round. The
-// summary's sigma follows from the weighted fit as for any weights, its
-// covariance from positionSandwich. It returns the note for the Result.
+// weights). The position sigmas given are an upper bound: the size of the
+// scatter the weights and the mean correction take is the one the
+// residuals bear, up to the given (positionScale), and so is the reading
+// noise s unless Problem.Sigma gives it. A stated sigma larger than the
+// true scatter, taken as it stood, corrected the readings for a scatter
+// that was not there (the correction grows as its square): in review
+// 0.5 m stated over 0.2 m of scatter left depths 0.17 m shallow at 1.4 m,
+// 8.6 sigma. The readings are corrected by the mean change the scatter
+// makes (bias) at each round. The summary's sigma follows from the
+// weighted fit as for any weights, its covariance from positionSandwich.
+// It returns the note for the Result.
 func (f *fitter) positionWeights(c *candidate) (string, error) {
 	plan, up := f.set.PositionSigmaPlan, f.set.PositionSigmaUp
 	sp := c.sp
@@ -241,42 +299,58 @@ func (f *fitter) positionWeights(c *candidate) (string, error) {
 	if dof <= 0 {
 		return "", nil
 	}
-	// The reading noise: the given Problem.Sigma, else the one that makes
-	// the residuals consistent with their variances (noiseWithPositions),
-	// but no more than the readings' own from their differences
-	// (noiseFloor), which a field's curvature and a scatter of the true
-	// positions can only raise: where the positions' share dominates the
-	// residuals set the noise poorly (2 nT of noise under 200 nT of
-	// position misfit read anywhere from 0.2 to 24 nT). With the noise
-	// estimated, the weighted residuals scale the whole variance in the
-	// summary (its sigma over this one).
+	// The reading noise: the given Problem.Sigma, else the one the
+	// residuals bear beside the positions' share (positionScale), but no
+	// more than the readings' own from their differences (noiseFloor),
+	// which a field's curvature and a scatter of the true positions can
+	// only raise: where the positions' share dominates the residuals set
+	// the noise poorly (2 nT of noise under 200 nT of position misfit read
+	// anywhere from 0.2 to 24 nT). With the noise estimated, the weighted
+	// residuals scale the whole variance in the summary (its sigma over
+	// this one).
 	known := f.prob.Sigma > 0
 	s2 := f.prob.Sigma * f.prob.Sigma
+	plain := c.rss / float64(dof)
 	if !known {
-		s2 = c.rss / float64(dof)
+		s2 = plain
 	}
 	if !(s2 > 0) {
 		return "", nil
 	}
 	floor2 := f.noiseFloor()
 	floor2 *= floor2
-	// The noise may not fall below a thousandth of the plain fit's: a
-	// position sigma stated larger than the residuals allow would
-	// otherwise weigh the readings by their gradients alone.
-	s2min := 1e-6 * s2
-	m, nr := sp.m, sp.nrhs
+	// The noise may not fall below a millionth of the plain fit's
+	// variance, nor rise above it or the floor.
+	s2lo, s2hi := 1e-6*plain, plain
+	if floor2 > 0 && floor2 < s2hi {
+		s2hi = floor2
+	}
+	if s2lo > s2hi {
+		s2lo = s2hi
+	}
+	m := sp.m
 	w := make([]float64, m)
 	// The separable's readings may be the survey's: corrected in a copy.
 	y := sp.y
 	sp.y = slices.Clone(y)
 	sp.pd = nil
+	tp, tu := 1.0, 1.0
 	rounds := 0
+	var pp *positionParts
 	for rounds < positionRounds {
 		rounds++
-		g2, bias, _, _, err := sp.positionVariance(c.x, plan, up)
+		var err error
+		if pp, err = sp.positionParts(c.x, plan, up); err != nil {
+			return "", err
+		}
+		saved := sp.w
+		res, err := sp.fullResiduals(c.x)
+		sp.w = saved
 		if err != nil {
 			return "", err
 		}
+		tp, tu, s2 = positionScale(pp, res, dof, s2, known, s2lo, s2hi, plan > 0, up > 0)
+		g2, bias, _, _ := pp.scaled(tp, tu)
 		// The readings less the mean change the scatter makes (the
 		// second-order bias of errors in the variables): the model is
 		// fitted to what a reading at the logged place reads on average.
@@ -285,25 +359,14 @@ func (f *fitter) positionWeights(c *candidate) (string, error) {
 			moved = math.Max(moved, math.Abs(y[i]-b-sp.y[i]))
 			sp.y[i] = y[i] - b
 		}
-		if !known {
-			saved := sp.w
-			res, err := sp.fullResiduals(c.x)
-			sp.w = saved
-			if err != nil {
-				return "", err
-			}
-			s2, _ = noiseWithPositions(res, g2, nr, dof, s2min)
-			if floor2 > 0 && s2 > floor2 {
-				s2 = floor2
-			}
-		}
 		change := 0.0
 		for row := range m {
 			nw := s2 / (s2 + g2[row])
 			change = math.Max(change, math.Abs(nw-w[row]))
 			w[row] = nw
 		}
-		if change < 1e-3 && moved < 1e-3*math.Sqrt(s2) {
+		// At least one weighted fit: the weights start from none.
+		if rounds > 1 && change < 1e-3 && moved < 1e-3*math.Sqrt(s2) {
 			break
 		}
 		if sp.w == nil {
@@ -323,23 +386,126 @@ func (f *fitter) positionWeights(c *candidate) (string, error) {
 		c.iters += r.iter
 	}
 	// The terms at the fit, for the covariance (positionSandwich).
-	_, _, grad, curv, err := sp.positionVariance(c.x, plan, up)
+	pp, err := sp.positionParts(c.x, plan, up)
 	if err != nil {
 		return "", err
 	}
+	_, _, grad, curv := pp.scaled(tp, tu)
 	f.pos = &positionTerms{s2: s2, grad: grad, curv: curv}
 	if err := sp.evaluate(c.x); err != nil {
 		return "", err
 	}
-	note := fmt.Sprintf("%s: %.3g m across the plan, %.3g m in height (effective variance, %d rounds)", PositionSigmaNote, plan, up, rounds)
+	note := fmt.Sprintf("%s: %.3g m across the plan, %.3g m in height", PositionSigmaNote, plan, up)
+	hp, hu := plan*math.Sqrt(tp), up*math.Sqrt(tu)
+	if hp < 0.95*plan || hu < 0.95*up {
+		note += fmt.Sprintf(" given, of which the residuals bear %.2g m and %.2g m, taken for the weights and the mean correction (a larger value taken as it stood would over-correct the depths)", hp, hu)
+	}
+	note += fmt.Sprintf(" (effective variance, %d rounds)", rounds)
 	// The weighted residuals against the variances taken: near 1 when the
 	// position sigmas and the noise hold.
 	if k := c.rss / float64(dof) / s2; !known && k < positionRatioLow {
-		note += fmt.Sprintf("; the readings miss the fit by %.2g times what the noise and those position sigmas explain: the position sigmas may be too large, and the uncertainties are narrowed by that ratio", math.Sqrt(k))
+		note += fmt.Sprintf("; the readings miss the fit by %.2g times what the noise from their differences and the position scatter taken explain, and the uncertainties are narrowed by that ratio", math.Sqrt(k))
 	} else if !known && k > positionRatioHigh {
-		note += fmt.Sprintf("; the readings miss the fit by %.2g times what the noise and those position sigmas explain: the position sigmas may be too small, or the model misses, and the uncertainties are widened by that ratio", math.Sqrt(k))
+		what := "the full position sigmas given"
+		if hp < 0.95*plan || hu < 0.95*up {
+			what = "the position scatter taken"
+		}
+		note += fmt.Sprintf("; the readings miss the fit by %.2g times what the noise and %s explain: the position sigmas may be too small, or the model misses, and the uncertainties are widened by that ratio", math.Sqrt(k), what)
 	}
 	return note, nil
+}
+
+// positionScale returns the variance scales tp and tu, each in [0, 1],
+// of the position sigmas across the plan and in height, and the reading
+// noise variance s2 in [s2lo, s2hi] (kept as given when known), that best
+// explain the residuals res (rows of pp.nr parts) as Gaussian of variance
+// s2 + the positions' share at those scales (pp): variance components by
+// likelihood, minimising
+//
+//	sum_rows sum_parts r^2/V + (dof/n) log V
+//
+// (the factor dof/n, so that a common scale of V comes out where the
+// weighted residuals count the degrees of freedom, not the readings: the
+// fit has taken k of them), by golden sections on sqrt(tp), sqrt(tu) and
+// log s2 in turn. Only the variances are matched, not the mean change,
+// which the fit's parameters absorb alike. fitP, fitU say which sigmas
+// were given (the other scale is left at 1, its terms being zero).
+func positionScale(pp *positionParts, res []float64, dof int, s2 float64, known bool, s2lo, s2hi float64, fitP, fitU bool) (tp, tu, s2out float64) {
+	nr := pp.nr
+	n := len(res)
+	m := n / nr
+	// Per row: the squared residuals over its parts and the variance's
+	// coefficients in tp, tu, tp^2, tu^2, tp tu (the mean over parts).
+	rr := make([]float64, m)
+	co := make([][5]float64, m)
+	for i := range n {
+		row := i / nr
+		rr[row] += res[i] * res[i]
+		g, h, x := pp.g[i], pp.h[i], pp.x[i]
+		c := &co[row]
+		c[0] += (g[0]*g[0] + g[1]*g[1]) / float64(nr)
+		c[1] += g[2] * g[2] / float64(nr)
+		c[2] += ((h[0]*h[0]+h[1]*h[1])/2 + x[0]*x[0]) / float64(nr)
+		c[3] += h[2] * h[2] / 2 / float64(nr)
+		c[4] += (x[1]*x[1] + x[2]*x[2]) / float64(nr)
+	}
+	cl := float64(dof) / float64(n) * float64(nr)
+	nll := func(ap, au, ls float64) float64 {
+		tp, tu, s2 := ap*ap, au*au, math.Exp(ls)
+		t := 0.0
+		for row, c := range co {
+			v := s2 + c[0]*tp + c[1]*tu + c[2]*tp*tp + c[3]*tu*tu + c[4]*tp*tu
+			t += rr[row]/v + cl*math.Log(v)
+		}
+		return t
+	}
+	// golden minimises g over [lo, hi], the ends included.
+	golden := func(g func(float64) float64, lo, hi, tol float64) float64 {
+		const r = 0.6180339887498949
+		a, b := lo, hi
+		x1, x2 := b-r*(b-a), a+r*(b-a)
+		f1, f2 := g(x1), g(x2)
+		for b-a > tol {
+			if f1 < f2 {
+				b, x2, f2 = x2, x1, f1
+				x1 = b - r*(b-a)
+				f1 = g(x1)
+			} else {
+				a, x1, f1 = x1, x2, f2
+				x2 = a + r*(b-a)
+				f2 = g(x2)
+			}
+		}
+		best, fb := (a+b)/2, g((a+b)/2)
+		for _, e := range []float64{lo, hi} {
+			if fe := g(e); fe < fb {
+				best, fb = e, fe
+			}
+		}
+		return best
+	}
+	ap, au := 1.0, 1.0
+	ls := math.Log(min(max(s2, s2lo), s2hi))
+	if known {
+		ls = math.Log(s2)
+	}
+	llo, lhi := math.Log(s2lo), math.Log(s2hi)
+	for range 6 {
+		p0, u0, l0 := ap, au, ls
+		if fitP {
+			ap = golden(func(a float64) float64 { return nll(a, au, ls) }, 0, 1, 1e-3)
+		}
+		if fitU {
+			au = golden(func(a float64) float64 { return nll(ap, a, ls) }, 0, 1, 1e-3)
+		}
+		if !known && lhi > llo {
+			ls = golden(func(l float64) float64 { return nll(ap, au, l) }, llo, lhi, 1e-3)
+		}
+		if math.Abs(ap-p0) < 2e-3 && math.Abs(au-u0) < 2e-3 && math.Abs(ls-l0) < 2e-3 {
+			break
+		}
+	}
+	return ap * ap, au * au, math.Exp(ls)
 }
 
 // noiseWithPositions returns the reading noise variance s2 that makes

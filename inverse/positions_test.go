@@ -130,3 +130,159 @@ func TestPositionSigmaSettingsChecked(t *testing.T) {
 		}
 	}
 }
+
+// TestPositionSigmaOverstated checks a fit given position sigmas larger
+// than the true scatter (0.2 m across the plan, exact heights): the
+// readings' residuals show the scatter's real size, and the fit is to
+// take that, not the stated one, for the mean correction and the weights.
+// A stated 0.5 m across the plan corrected the depths for a scatter six
+// times the true one's variance (0.17 m shallow at 1.4 m, pulls of RMS
+// 8.6 in review); 0.2 m in height over exact heights (V defaulting to H)
+// floored the noise estimate and the loop stopped in its first round
+// with a note that the sigmas were widened 1000 times, and were not.
+// The pulls must stay within [0.6, 1.5] of RMS (the current's [0.5, 1.5]:
+// its sigma is a little wide, 0.63 with the true value stated), the note must not speak
+// of widening, and must say the values taken.
+func TestPositionSigmaOverstated(t *testing.T) {
+	runs := 40
+	if testing.Short() {
+		runs = 15
+	}
+	const plan = 0.2
+	for _, c := range []struct{ h, v float64 }{{0.5, 0.01}, {0.3, 0.01}, {0.2, 0.2}, {0.2, 0.01}} {
+		d, i, note := positionPulls(t, Settings{PositionSigmaPlan: c.h, PositionSigmaUp: c.v}, plan, 0, runs)
+		t.Logf("stated %g,%g over true %g,0: depth pulls RMS %.2f, current %.2f; %s", c.h, c.v, plan, d, i, note)
+		if !(d >= 0.6 && d <= 1.5) {
+			t.Errorf("stated %g,%g: depth pulls RMS %.2f, want 0.6-1.5", c.h, c.v, d)
+		}
+		if !(i >= 0.5 && i <= 1.5) {
+			t.Errorf("stated %g,%g: current pulls RMS %.2f, want 0.5-1.5", c.h, c.v, i)
+		}
+		if strings.Contains(note, "widened") {
+			t.Errorf("stated %g,%g: note %q speaks of widening", c.h, c.v, note)
+		}
+	}
+}
+
+// TestPositionSigmaFlooredNoise checks one traverse whose plan positions
+// scatter by 0.2 m over exact heights, given 0.2 m both across the plan
+// and in height (the height sigma defaulting to the plan's): the stated
+// height scatter alone exceeds the residuals. The noise estimate then hit
+// its floor, every weight was about zero, the loop stopped in its first
+// round before any weight was set, the fit was the plain one to the last
+// digit and its note said the sigmas were widened 1000 times (in review,
+// 42 of 42 fits). The fit must be weighted (more than one round, a depth
+// other than the plain fit's), the height scale taken from the residuals
+// well under the 0.2 m given, and the note must not speak of widening.
+func TestPositionSigmaFlooredNoise(t *testing.T) {
+	const trueI, trueD, noise = 25.0, 1.1, 2.0
+	line := Line{Point: [3]float64{0, 0, -trueD}, Dir: [3]float64{0, 1, 0}}
+	logged := traverse(81, -4, 4, 0, 0.3)
+	zero := 0.0
+	rng := rand.New(rand.NewPCG(26, 2))
+	for run := range 3 {
+		pts := make([][3]float64, len(logged))
+		truePts := make([][3]float64, len(logged))
+		for i, p := range logged {
+			pts[i] = p
+			truePts[i] = [3]float64{p[0] + 0.2*rng.NormFloat64(), p[1] + 0.2*rng.NormFloat64(), p[2]}
+		}
+		f := simulate(truePts, []Line{line}, []float64{trueI}, [3]float64{-150, 19200, -45100}, noise, rng)
+		fit := func(s Settings) *Result {
+			s.Count, s.ReferenceZ = 1, &zero
+			res, err := FitLines(&Problem{Points: pts, Fields: f}, &s)
+			if err != nil {
+				t.Fatal(err)
+			}
+			return res
+		}
+		plain := fit(Settings{})
+		with := fit(Settings{PositionSigmaPlan: 0.2, PositionSigmaUp: 0.2})
+		note := ""
+		for _, n := range with.Notes {
+			if strings.HasPrefix(n, PositionSigmaNote) {
+				note = n
+			}
+		}
+		t.Logf("run %d: depth plain %.4f, with %.4f ± %.4f; %s", run, plain.Sources[0].Depth, with.Sources[0].Depth, with.Sources[0].DepthSigma, note)
+		if strings.Contains(note, "widened") || strings.Contains(note, " 1 rounds") {
+			t.Errorf("run %d: note %q: want a weighted fit of more than one round, not widened", run, note)
+		}
+		if !strings.Contains(note, "residuals bear") {
+			t.Errorf("run %d: note %q does not say the scatter taken", run, note)
+		}
+		if plain.Sources[0].Depth == with.Sources[0].Depth {
+			t.Errorf("run %d: depth %.6f with position sigmas, the plain fit's to the last digit", run, with.Sources[0].Depth)
+		}
+	}
+}
+
+// TestPositionSigmaSystematic checks traverses whose logged positions
+// drift slowly off the true ones (0.2 m sd across the plan, lag-1
+// correlation 0.997 per 0.1 m step: the traverse shifted and slowly bent,
+// as a datum shift or an uncorrected drift do): such an error is not the
+// independent scatter the position sigmas describe. With 0.2 m stated the
+// depth errors must not be larger than without the flag (in review the
+// depths were biased, z mean -3.3, the correction made for a scatter not
+// there; the pulls are logged, not asserted: the serial widening, taken on
+// residuals in units of their sigmas, comes out smaller with the flag and
+// the pulls wider, a limit), and where the residuals are correlated the note must
+// say that position errors not independent from reading to reading are
+// not this model (it said the sigmas might be too large).
+func TestPositionSigmaSystematic(t *testing.T) {
+	const trueI, trueD, noise = 25.0, 1.1, 2.0
+	line := Line{Point: [3]float64{0, 0, -trueD}, Dir: [3]float64{0, 1, 0}}
+	logged := traverse(81, -4, 4, 0, 0.3)
+	zero := 0.0
+	rng := rand.New(rand.NewPCG(26, 3))
+	a := 0.997
+	var sdPlain, sdWith, ePlain, eWith float64
+	named, correlated, runs := 0, 0, 20
+	for range runs {
+		pts := make([][3]float64, len(logged))
+		truePts := make([][3]float64, len(logged))
+		ex, ey := 0.2*rng.NormFloat64(), 0.2*rng.NormFloat64()
+		for i, p := range logged {
+			if i > 0 {
+				ex = a*ex + math.Sqrt(1-a*a)*0.2*rng.NormFloat64()
+				ey = a*ey + math.Sqrt(1-a*a)*0.2*rng.NormFloat64()
+			}
+			pts[i] = p
+			truePts[i] = [3]float64{p[0] - ex, p[1] - ey, p[2]}
+		}
+		f := simulate(truePts, []Line{line}, []float64{trueI}, [3]float64{-150, 19200, -45100}, noise, rng)
+		fit := func(s Settings) *Result {
+			s.Count, s.ReferenceZ = 1, &zero
+			res, err := FitLines(&Problem{Points: pts, Fields: f}, &s)
+			if err != nil {
+				t.Fatal(err)
+			}
+			return res
+		}
+		plain := fit(Settings{})
+		with := fit(Settings{PositionSigmaPlan: 0.2, PositionSigmaUp: 0.01})
+		p := (plain.Sources[0].Depth - trueD) / plain.Sources[0].DepthSigma
+		w := (with.Sources[0].Depth - trueD) / with.Sources[0].DepthSigma
+		ePlain += math.Pow(plain.Sources[0].Depth-trueD, 2)
+		eWith += math.Pow(with.Sources[0].Depth-trueD, 2)
+		sdPlain += p * p
+		sdWith += w * w
+		if with.SigmaWidening > 1 {
+			correlated++
+			for _, n := range with.Notes {
+				if strings.HasPrefix(n, PositionSigmaNote) && strings.Contains(n, PositionSystematicNote) {
+					named++
+				}
+			}
+		}
+	}
+	sdPlain, sdWith = math.Sqrt(sdPlain/float64(runs)), math.Sqrt(sdWith/float64(runs))
+	ePlain, eWith = math.Sqrt(ePlain/float64(runs)), math.Sqrt(eWith/float64(runs))
+	t.Logf("%d runs: depth error RMS %.4f m plain, %.4f m with 0.2 m stated (pulls RMS %.2f, %.2f); %d correlated, %d of them named", runs, ePlain, eWith, sdPlain, sdWith, correlated, named)
+	if eWith > 1.1*ePlain {
+		t.Errorf("depth error RMS %.4f m with the flag, %.4f m without: want no larger", eWith, ePlain)
+	}
+	if correlated == 0 || named != correlated {
+		t.Errorf("%d fits with correlated residuals, %d of them naming position errors not independent from reading to reading: want all, and some", correlated, named)
+	}
+}

@@ -1242,6 +1242,15 @@ func (f *fitter) report(c *candidate, scores []ModelScore) (*Result, error) {
 		r.Notes = append(r.Notes, RobustNote)
 	}
 	if posNote != "" {
+		// Residuals correlated along the readings under position sigmas:
+		// what is left is not a scatter independent from reading to
+		// reading, which is all the position sigmas describe (a traverse
+		// shifted whole, a slow drift or a chainage that stretches leave
+		// the readings' misfit smooth). Said, so that the position sigma
+		// is not taken for the fault.
+		if posNote != PositionSigmaRobustNote && sp.nrhs == 1 && su.widen > 1 {
+			posNote += "; " + PositionSystematicNote
+		}
 		r.Notes = append(r.Notes, posNote)
 	}
 	if sp.nrhs == 1 {
