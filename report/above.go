@@ -106,13 +106,17 @@ func aboveFit(f *Fit, measured float64, ac bool) *aboveLine {
 
 // aboveWords names a conductor above the sensors that explains a group's
 // readings, for the failure texts that would otherwise send the user to
-// the field's axes.
+// the field's axes only. For sensors at one height a line above is a line
+// below with Bx, By negated, so a sensor turned half round about its
+// vertical fits the same: both are named, the axes first (a regression
+// test of a turned sensor, TestNoCurrentNamesAxesMistake, caught the
+// axes' advice dropped).
 func (a *aboveLine) words(ac bool) string {
 	cur := PlusMinus(a.Current, a.CurrentSigma)
 	if ac {
 		cur = PlusMinus(math.Abs(a.Current), a.CurrentSigma)
 	}
-	return fmt.Sprintf("a conductor about %.2g m above the sensors explains these readings (an overhead line, a cable tray or cables under a deck or ceiling?): refitted with a line allowed above the sensors, it carries %s A, %s m above the sensors' mean height, passing E %.1f m, N %.1f m, and misses by %.3g nT RMS, %.3g times the noise. The fit keeps every conductor below the sensors, so this group has no estimate of its own; do not turn an axis to make the readings fit, which would put this conductor's mirror image below ground",
+	return fmt.Sprintf("a conductor about %.2g m above the sensors explains these readings (an overhead line, a cable tray or cables under a deck or ceiling?): refitted with a line allowed above the sensors, it carries %s A, %s m above the sensors' mean height, passing E %.1f m, N %.1f m, and misses by %.3g nT RMS, %.3g times the noise. A sensor turned half round about its vertical (x and y reversed) over a conductor below gives the same readings, which alone cannot tell the two apart: check the sensor's orientation and the field columns first (a base log beside the survey, --base, names a turned sensor). With the axes right, this group has no estimate of its own (the fit keeps every conductor below the sensors); do not turn an axis to make the readings fit, which would put this conductor's mirror image below ground",
 		a.Height, cur, PlusMinus(a.Height, a.HeightSigma), a.East, a.North, a.RMS, a.RMS/a.Noise)
 }
 

@@ -584,7 +584,7 @@ func sharedMisfit(fits []Fit, bs *BuildSettings, rs *route.Settings) string {
 		if k < bad {
 			which = fmt.Sprintf("%d of them", k)
 		}
-		return fmt.Sprintf("%s, %.3g times the %.3g nT noise the readings themselves show and %.2g%% of the signal: no line below the sensors describes this field, so positions, depths and currents of lines below mean nothing here. A conductor above the sensors explains %s; at %s, %s",
+		return fmt.Sprintf("%s, %.3g times the %.3g nT noise the readings themselves show and %.2g%% of the signal: no line below the sensors describes this field, so positions, depths and currents of lines below mean nothing here. A conductor above the sensors explains %s, or the field's axes are read wrong (a sensor turned half round about its vertical gives the same readings over a conductor below); at %s, %s",
 			lead, m/nm, nm, 100*median(frac), which, a.key, a.words(a.ac))
 	}
 	if sc, pm := jitterExplains(misses); pm > 0 {
