@@ -388,6 +388,9 @@ func holdRejected(free, held *Result) (rise, limit float64, rejected bool) {
 // run fits Settings.Count lines, or chooses the count, and reports the fit.
 func (f *fitter) run() (*Result, error) {
 	s := f.set
+	if len(s.Above) > 0 {
+		return f.runAbove()
+	}
 	if s.Count > 0 {
 		var prev *candidate
 		var err error
@@ -2665,7 +2668,7 @@ func (f *fitter) misplaced(c *candidate) string {
 		}
 	}
 	for i, g := range c.sp.geom {
-		if g.z >= g.zHi-1e-9 {
+		if g.atHeightBound() {
 			return fmt.Sprintf("line %d sits at the minimum depth bound", i+1)
 		}
 		// A line far deeper than the survey is wide makes a nearly uniform
@@ -2693,6 +2696,9 @@ func (f *fitter) misplaced(c *candidate) string {
 // fitted with two lines the second was a 0.001 A line through the readings
 // "-0.53 m" deep, absorbing noise next to a sensor. No buried conductor lies there.
 func (f *fitter) aboveSensors(g *lineGeom) bool {
+	if g.above {
+		return false
+	}
 	ln := g.line()
 	u := ln.Dir
 	pt := add(ln.Point, scale(u, dot(sub(f.sv.centroid, ln.Point), u)))

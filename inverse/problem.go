@@ -1,6 +1,7 @@
 package inverse
 
 import (
+	"errors"
 	"fmt"
 	"math"
 	"math/cmplx"
@@ -239,6 +240,21 @@ type Settings struct {
 	// MinDepth keeps each conductor at least this far (m) below the lowest sensor; 0
 	// means 0.02 m.
 	MinDepth float64
+	// Above, when not empty, are lines fitted ABOVE the sensors (an overhead
+	// line, a cable tray, cables under a deck) together with Count lines
+	// below them: each is started from its Line (a point on it and its
+	// direction) and its height bounded to at least MinDepth above the
+	// highest sensor, the bound of the lines below flipped; the lines below
+	// are fitted as with Count alone and then polished with those above.
+	// Count must be given, with Count plus the lines above at most 8, and no
+	// Dipoles. The Result lists every line; those above have Point above the
+	// sensors and a negative Depth. Without it (nil, the default) every line
+	// is held below the sensors and the fit is as before. A conductor above
+	// the sensors is the mirror image of one below in the sensors' height
+	// with the horizontal field components reversed, so three-axis readings
+	// tell the two apart; a fit that holds it below misses by far more
+	// than the noise and biases the lines below (see report's aboveFit).
+	Above []Line
 	// Robust enables Huber weights by iterative reweighting (Huber 1964; Holland &
 	// Welsch 1977), for data with outliers.
 	Robust bool
@@ -310,6 +326,23 @@ func (s *Settings) check() error {
 	}
 	if s.MaxCount < 0 || s.MaxCount > 8 {
 		return fmt.Errorf("inverse: Settings.MaxCount = %d, want 0 (meaning 4) to 8", s.MaxCount)
+	}
+	if len(s.Above) > 0 {
+		if s.Count < 1 || s.Count+len(s.Above) > 8 {
+			return fmt.Errorf("inverse: Settings.Above has %d lines with Settings.Count = %d: give Count, the lines below (1 or more), with Count plus the lines above at most 8", len(s.Above), s.Count)
+		}
+		if s.Dipoles != 0 {
+			return errors.New("inverse: Settings.Above is not fitted with Settings.Dipoles")
+		}
+		for i, l := range s.Above {
+			ok := l.Dir[0] != 0 || l.Dir[1] != 0 || l.Dir[2] != 0
+			for j := 0; j < 3; j++ {
+				ok = ok && finite(l.Point[j]) && finite(l.Dir[j])
+			}
+			if !ok {
+				return fmt.Errorf("inverse: Settings.Above[%d] needs a finite point and a non-zero finite direction", i)
+			}
+		}
 	}
 	if s.MaxIter < 0 {
 		return fmt.Errorf("inverse: Settings.MaxIter = %d, want 0 (meaning 200) or more", s.MaxIter)

@@ -547,7 +547,10 @@ func (f *fitter) summariseAsIs(c *candidate) (*summary, error) {
 			e.Notes = append(e.Notes, "current not significantly different from zero: the position is not determined by the data")
 			id.Depth, id.Offset, id.Azimuth, id.Dip, id.Phase = false, false, false, false, false
 		}
-		if g.z >= g.zHi-1e-9 {
+		if g.above && g.atHeightBound() {
+			e.Notes = append(e.Notes, "held at the least height above the sensors: the height is not determined")
+			id.Depth = false
+		} else if g.atHeightBound() {
 			e.Notes = append(e.Notes, "held at the minimum depth below the sensors: the depth is not determined")
 			id.Depth = false
 		}

@@ -27,6 +27,19 @@ type lineGeom struct {
 	// with a wider bound turned the line beyond it and fitted the readings better
 	// (see fitter.pressedByBound).
 	azPressed bool
+	// above says the line is bounded above the sensors (Settings.Above): zLo
+	// is then Settings.MinDepth above the highest sensor and zHi far above,
+	// the bound of a line below flipped; its height bound is zLo.
+	above bool
+}
+
+// atHeightBound reports whether the line sits at the bound of its height
+// nearest the sensors: zHi for a line below them, zLo for one above.
+func (g *lineGeom) atHeightBound() bool {
+	if g.above {
+		return g.z <= g.zLo+1e-9
+	}
+	return g.z >= g.zHi-1e-9
 }
 
 // azBounds returns the bounds of a fitted azimuth.
