@@ -67,12 +67,19 @@ type locateOptions struct {
 	mains           []float64 // mains frequencies fitted as nuisance beside another --freq
 	count           string
 	groupBy         string
-	json            bool
-	out             string
-	minCover        float64
-	coverCode       string
-	referenceZ      float64
-	hasRefZ         bool
+	// --along-window: alongText as given; alongLen the window length, m
+	// (0 auto, -1 off); alongAuto when the run chose it, alongWhy the
+	// reason (alongwindows.go).
+	alongText  string
+	alongLen   float64
+	alongAuto  bool
+	alongWhy   string
+	json       bool
+	out        string
+	minCover   float64
+	coverCode  string
+	referenceZ float64
+	hasRefZ    bool
 	// sensorHeight is the bare --sensor-height, for every log not named
 	// in heightPerLog (--sensor-height LOG=H, perlog.go); sensorHeights
 	// the flag's values as given.
@@ -158,6 +165,7 @@ func (o *locateOptions) setFlags(fs *pflag.FlagSet) {
 	o.coil.add(fs)
 	fs.StringVar(&o.count, "count", "auto", "number of line conductors per fit, `N` (1-4) or auto")
 	fs.StringVar(&o.groupBy, "group-by", "", "fit each value of column `COL` separately (a traverse, a sensor, a time window) and build the along-route profile from the groups")
+	fs.StringVar(&o.alongText, "along-window", "auto", "without --group-by, cut readings walked along their length (a cart of several sensors side by side, or a zig-zag, along a conductor) into consecutive windows of `M` metres along the walk and fit each as a station of the route; auto does it when one fit of every reading misses them (the length then chosen from the swath's width), off never")
 	fs.BoolVar(&o.json, "json", false, "print the result document (JSON) on stdout")
 	fs.StringVarP(&o.out, "output", "o", "", "write results.json, results.csv, findings.csv, route.geojson and report.html into `DIR`")
 	fs.BoolVar(&o.csvDecimalComma, "csv-decimal-comma", false, "write results.csv and findings.csv with a semicolon between fields and a decimal comma (60,015), for a spreadsheet set to a language that writes decimals so (German, French, ...), which takes the usual 60.015 for 60015; text cells are as usual; needs -o")
@@ -327,6 +335,14 @@ func (o *locateOptions) check(fs *pflag.FlagSet) error {
 	}
 	if o.coverCode != "" && o.minCover == 0 {
 		return usageErrorf("--cover-code names where --min-cover comes from; give --min-cover too")
+	}
+	if v, err := parseAlongWindow(o.alongText); err != nil {
+		return err
+	} else {
+		o.alongLen = v
+	}
+	if o.groupBy != "" && o.alongLen > 0 {
+		return usageErrorf("--along-window cuts the readings into windows along the walk, and --group-by groups them by a column: give one")
 	}
 	if o.groupBy != "" {
 		for _, c := range append(append([]string(nil), o.read.columns...), o.read.columnsOld...) {
@@ -957,6 +973,9 @@ type survey struct {
 	// say which logs' on-state readings alone were fitted.
 	interrupted map[string]bool
 	intNotes    []string
+	// alongNotes say the logs were cut into along-route windows
+	// (alongwindows.go).
+	alongNotes []string
 	// leaky holds, for the AC logs in which a fitted mains line too strong
 	// for its distance leaks into the signal, why their groups are not
 	// sound (demodPlan.strongLine).
@@ -1010,6 +1029,20 @@ func runLocate(ctx context.Context, o *locateOptions, logs []string, progress io
 	}
 	if err := fitGroups(ctx, o, sv, progress); err != nil {
 		return nil, err
+	}
+	// Readings walked along their length that one fit cannot describe:
+	// fitted again in along-route windows (alongwindows.go).
+	if l, why := autoAlongWindows(o, sv); l > 0 {
+		o.alongLen, o.alongAuto, o.alongWhy = l, true, why
+		if sv, err = readSurvey(ctx, o, logs); err != nil {
+			return nil, err
+		}
+		if err := applyCurrentReference(ctx, o, sv); err != nil {
+			return nil, withWarnings(err, sv.alerts, sv.warnings)
+		}
+		if err := fitGroups(ctx, o, sv, progress); err != nil {
+			return nil, err
+		}
 	}
 	// A median |B| above the Earth's band that the fitted conductors'
 	// field accounts for is not a unit's fault (bandfield.go).
@@ -1442,7 +1475,7 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		if s.Frame != ingest.FrameENU {
 			enu = false
 		}
-		if o.groupBy == "" {
+		if !o.grouped() {
 			if w := groupColumnWarning(path, groupColumnName(o), s); w != "" {
 				sv.alerts = append(sv.alerts, w)
 				sv.groupWarned = true
@@ -1569,6 +1602,11 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			}
 			if w != "" {
 				sv.alerts = append(sv.alerts, w)
+			}
+		}
+		if o.windowed() {
+			if note := setAlongWindows(o, s, len(logs)); note != "" {
+				sv.alongNotes = append(sv.alongNotes, note)
 			}
 		}
 		// Demodulation takes no context either.
@@ -2375,7 +2413,7 @@ func nedToENUCalibration(c *calibrate.Calibration) *calibrate.Calibration {
 // groups (in order of first appearance).
 func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *ingest.Samples) error {
 	get := func(key string) *group {
-		if o.groupBy == "" {
+		if !o.grouped() {
 			key = ""
 		}
 		g := index[key]
@@ -2393,7 +2431,7 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 	defer func() {
 		if ungrouped > 0 {
 			sv.warnings = append(sv.warnings, fmt.Sprintf("%s: %d %s with an empty %s left out (no group to fit them in)",
-				s.Source, ungrouped, map[bool]string{true: "AC windows", false: "readings"}[sv.ac], o.groupBy))
+				s.Source, ungrouped, map[bool]string{true: "AC windows", false: "readings"}[sv.ac], map[bool]string{true: "position", false: o.groupBy}[o.windowed()]))
 		}
 	}()
 	if !sv.ac {
@@ -2402,7 +2440,7 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 			if s.Group != nil {
 				key = s.Group[i]
 			}
-			if o.groupBy != "" && key == "" {
+			if o.grouped() && key == "" {
 				ungrouped++
 				continue
 			}
@@ -2468,7 +2506,7 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 		sv.doc.Signal = report.Signal{Mode: report.SignalAC, FrequencyHz: res.Freq, WindowS: res.Window, NuisanceHz: res.Nuisance}
 	}
 	for _, w := range res.Windows {
-		if o.groupBy != "" && w.Group == "" {
+		if o.grouped() && w.Group == "" {
 			ungrouped++
 			continue
 		}
@@ -2708,7 +2746,7 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 			}
 		}
 	}
-	if o.groupBy == "" && !sv.groupWarned {
+	if !o.grouped() && !sv.groupWarned {
 		if w := spanWarning(sv); w != "" {
 			alerts = append(alerts, w+groupColumnHint(o, sv))
 		}
@@ -2836,6 +2874,8 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 	// The group the route starts at, in the warning that the order of
 	// the logs given set it (loggroups.go).
 	routeStartNote(doc)
+	// Logs cut into along-route windows (alongwindows.go).
+	doc.Notes = append(doc.Notes, sv.alongNotes...)
 	// Groups whose readings fell in a gap of the base record.
 	baseGapsDocument(doc, sv)
 	// Groups of a log with an interrupted current fitted as it is.
