@@ -34,6 +34,12 @@ const alongWindowRatio = 0.4
 // of a straight walk stays a few centimetres.
 const minAlongSwath = 0.1
 
+// maxAlongSwath is the largest RMS spread across a walk, m, taken as one
+// swath walked along its length (a cart 3.5 m wide, or a zig-zag of 1.7 m
+// to either side): readings spread wider across are traverses or lines of
+// their own, which --group-by names.
+const maxAlongSwath = 1.0
+
 // minAlongWindow is the shortest default window, m.
 const minAlongWindow = 2.0
 
@@ -92,10 +98,11 @@ func footprintOf(x, y []float64) planFootprint {
 
 // alongSwath reports whether a footprint is a swath walked along its
 // length: wide enough across (minAlongSwath) to see a conductor along it,
+// no wider than a cart or a zig-zag (maxAlongSwath),
 // yet narrow enough against its length that one fit takes it for a single
 // traverse (the fits' ratio 0.1), and long enough for two windows.
 func (f planFootprint) alongSwath() bool {
-	return f.n > 0 && f.across >= minAlongSwath && f.across < 0.1*f.along &&
+	return f.n > 0 && f.across >= minAlongSwath && f.across <= maxAlongSwath && f.across < 0.1*f.along &&
 		math.Sqrt(12)*f.along >= 2*alongWindowLength(f.across)
 }
 

@@ -111,3 +111,39 @@ func TestCartWalkedAlongCableWindowed(t *testing.T) {
 		t.Errorf("--along-window 8: %d groups, want 5", len(eight.Groups))
 	}
 }
+
+// TestCartSensorsNotTraverses: the same cart's log, with its sensor column.
+// Without --group-by (and with windows off) the warning told the user to
+// "fit each traverse with --group-by group", naming "group" for the file's
+// "sensor" column; done, each sensor's track, running along the cable,
+// gave hundreds of amperes 11 m down and a false change of sign (found in
+// review). The warning now names the column "sensor", says its values are
+// sensors logged together along the walk, and suggests windows along the
+// route; grouped by the column anyway, the run warns that tracks along a
+// conductor cannot each see it.
+func TestCartSensorsNotTraverses(t *testing.T) {
+	dir := t.TempDir()
+	log := filepath.Join(dir, "cart.csv")
+	writeCartAlongLog(t, log, []float64{-0.75, -0.25, 0.25, 0.75})
+	one := locateDoc(t, "--sensor-height", "0.3", "--along-window", "off", log)
+	var named bool
+	for _, w := range one.Warnings {
+		if strings.Contains(w, "fit each traverse with --group-by") {
+			t.Errorf("warning %q: advises fitting a cart's sensors one by one", w)
+		}
+		named = named || strings.Contains(w, `column "sensor"`) && strings.Contains(w, "sensors logged together") && strings.Contains(w, "--along-window")
+	}
+	if !named {
+		t.Errorf("warnings %q: want the column \"sensor\" named as sensors logged together, with windows along the route suggested", one.Warnings)
+	}
+	for _, by := range []string{"sensor", "group"} {
+		grouped := locateDoc(t, "--sensor-height", "0.3", "--group-by", by, log)
+		var blind bool
+		for _, w := range grouped.Warnings {
+			blind = blind || strings.Contains(w, `column "sensor"`) && strings.Contains(w, "cannot see it on its own")
+		}
+		if !blind {
+			t.Errorf("--group-by %s: warnings %q, want the sensors' tracks named as unable to see a conductor along them", by, grouped.Warnings)
+		}
+	}
+}

@@ -938,6 +938,9 @@ type survey struct {
 	// groupWarned is set when a log's group column drew the --group-by
 	// warning (then the span check is not needed).
 	groupWarned bool
+	// groupCol is the file's name of the column --group-by names (the
+	// first log's), for the warnings.
+	groupCol string
 	// groupLines holds, for each log whose group column drew that
 	// warning, the warning and its groups' directions of travel, so that
 	// the warning can be reworded once the fit is known (alongGroups).
@@ -1322,6 +1325,12 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		if o.groupBy != "" && s.Group == nil {
 			return nil, noGroupColumnError(path, o.groupBy, s)
 		}
+		if o.groupBy != "" && sv.groupCol == "" {
+			sv.groupCol = o.groupBy
+			if o.groupBy == ingest.ColGroup {
+				sv.groupCol = baseGroupColumn(path, opts)
+			}
+		}
 		if s.Group == nil && len(s.Unread) > 0 {
 			// For the span warning's hint (groupColumnHint).
 			sv.unread = append(sv.unread, unreadColumns{path, s.Unread})
@@ -1477,9 +1486,13 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		}
 		if !o.grouped() {
 			if w := groupColumnWarning(path, groupColumnName(o), s); w != "" {
+				// Worded with the file's own name of the column (a
+				// "sensor" column read as the group column).
+				name := baseGroupColumn(path, opts)
+				w = groupColumnWarning(path, name, s)
 				sv.alerts = append(sv.alerts, w)
 				sv.groupWarned = true
-				sv.groupLines = append(sv.groupLines, groupLines{warning: w, path: path, name: groupColumnName(o), dirs: groupDirections(s)})
+				sv.groupLines = append(sv.groupLines, groupLines{warning: w, path: path, name: name, dirs: groupDirections(s)})
 			}
 		}
 		if !o.despike {
@@ -2750,6 +2763,11 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 		if w := spanWarning(sv); w != "" {
 			alerts = append(alerts, w+groupColumnHint(o, sv))
 		}
+	}
+	// Groups that are tracks along the walk, each blind to a conductor
+	// along it (surveychecks.go).
+	if w := alongTracksWarning(o, sv, sv.groupCol); w != "" {
+		alerts = append(alerts, w)
 	}
 	if w := splitGroupsWarning(sv); w != "" {
 		alerts = append(alerts, w)
