@@ -192,6 +192,9 @@ func setAlongWindows(o *locateOptions, s *ingest.Samples, logs int) string {
 	}
 	s.Group = labels
 	f := footprintOf(s.X, s.Y)
+	if n, sep := parallelTracks(s.X, s.Y, f); n == 2 {
+		o.alongTwo = append(o.alongTwo, twoTracksWarning(s.Source+": ", sep))
+	}
 	how := fmt.Sprintf("--along-window %g", o.alongLen)
 	if o.alongAuto {
 		how = fmt.Sprintf("chosen from the swath's RMS width of %.2f m so that each window is %.0f%% as wide as long in RMS, over the tenth below which a fit takes readings for one traverse; --along-window M sets it, off stops it", f.across, 100*alongWindowRatio)
@@ -203,14 +206,77 @@ func setAlongWindows(o *locateOptions, s *ingest.Samples, logs int) string {
 		s.Source, math.Sqrt(12)*f.along, f.across, n, math.Sqrt(12)*f.along/float64(n), how)
 }
 
+// parallelTracks counts the straight tracks side by side that the
+// readings at x, y lie on across the footprint f's direction: clusters of
+// their offsets across it (2 cm bins, adjacent bins joined) that each hold
+// at least 5% of the readings and together at least 95%; 0 when the
+// offsets are spread (a zig-zag). sep is the largest distance between two
+// tracks' mean offsets, m.
+func parallelTracks(x, y []float64, f planFootprint) (n int, sep float64) {
+	const bin = 0.02
+	count := map[int]int{}
+	total := 0
+	for i := range x {
+		if math.IsNaN(x[i]) || math.IsNaN(y[i]) {
+			continue
+		}
+		c := -(x[i]-f.c[0])*f.t[1] + (y[i]-f.c[1])*f.t[0]
+		count[int(math.Floor(c/bin))]++
+		total++
+	}
+	if total == 0 {
+		return 0, 0
+	}
+	lo, hi := math.MaxInt, math.MinInt
+	for k := range count {
+		lo, hi = min(lo, k), max(hi, k)
+	}
+	var means []float64
+	covered := 0
+	for k := lo; k <= hi; {
+		if count[k] == 0 {
+			k++
+			continue
+		}
+		m, sum := 0, 0.0
+		for ; k <= hi && count[k] > 0; k++ {
+			m += count[k]
+			sum += float64(count[k]) * (float64(k) + 0.5) * bin
+		}
+		if float64(m) >= 0.05*float64(total) {
+			means = append(means, sum/float64(m))
+			covered += m
+		}
+	}
+	if float64(covered) < 0.95*float64(total) {
+		return 0, 0
+	}
+	if len(means) > 1 {
+		sep = means[len(means)-1] - means[0]
+	}
+	return len(means), sep
+}
+
+// twoTracksWarning is the warning for readings on two straight tracks sep
+// m apart walked along their length: they cannot part a conductor along
+// them from the background. Two sensors walked straight along a cable
+// gave every window "the line lies above the ground given" or currents
+// such as 46422 ± 19923443 A, with no word why (found in review).
+func twoTracksWarning(path string, sep float64) string {
+	return fmt.Sprintf("%sthe readings lie on two straight tracks %.2f m apart walked along their length: two tracks running side by side along a conductor cannot part its field from the background field (the six field values at each place along them, less the background's three, cannot give a current, a position across and a depth), so no fit of them places it; walk a zig-zag across its line, add a third sensor across the cart, or walk traverses across it",
+		path, sep)
+}
+
 // autoAlongWindows decides, after a run without --group-by fitted every
 // reading as one group, whether to fit again in along-route windows: the
 // readings form a swath walked along its length (alongSwath) and the one
 // fit failed or misses them by more than alongMisfit times their noise.
-// It returns the window length, m, and the reason; 0 for no.
-func autoAlongWindows(o *locateOptions, sv *survey) (float64, string) {
+// It returns the window length, m, and the reason; 0 for no. warn is a
+// warning for a swath of two straight tracks, which windows cannot help
+// (parallelTracks).
+func autoAlongWindows(o *locateOptions, sv *survey) (length float64, why, warn string) {
 	if o.groupBy != "" || o.alongLen != 0 || len(sv.groups) != 1 || sv.ac {
-		return 0, ""
+		return 0, "", ""
 	}
 	g := sv.groups[0]
 	x, y := make([]float64, len(g.points)), make([]float64, len(g.points))
@@ -219,7 +285,7 @@ func autoAlongWindows(o *locateOptions, sv *survey) (float64, string) {
 	}
 	f := footprintOf(x, y)
 	if !f.alongSwath() {
-		return 0, ""
+		return 0, "", ""
 	}
 	// The noise the readings show (from neighbouring readings), else the
 	// --noise given.
@@ -227,7 +293,6 @@ func autoAlongWindows(o *locateOptions, sv *survey) (float64, string) {
 	if !(noise > 0) {
 		noise = o.noise
 	}
-	var why string
 	switch {
 	case g.err != nil || g.res == nil:
 		why = "fitted as one group, they gave no answer"
@@ -235,11 +300,14 @@ func autoAlongWindows(o *locateOptions, sv *survey) (float64, string) {
 			why = fmt.Sprintf("fitted as one group, they gave no answer and were missed by %.3g nT RMS, %.0f times their %.2g nT noise", g.res.RMS, g.res.RMS/noise, noise)
 		}
 	case !(noise > 0):
-		return 0, ""
+		return 0, "", ""
 	case len(g.res.Sources) == 0 || g.res.RMS > alongMisfit*noise:
 		why = fmt.Sprintf("fitted as one group, they were missed by %.3g nT RMS, %.0f times their %.2g nT noise", g.res.RMS, g.res.RMS/noise, noise)
 	default:
-		return 0, ""
+		return 0, "", ""
 	}
-	return alongWindowLength(f.across), why
+	if n, sep := parallelTracks(x, y, f); n == 2 {
+		return 0, "", twoTracksWarning("", sep)
+	}
+	return alongWindowLength(f.across), why, ""
 }

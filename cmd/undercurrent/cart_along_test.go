@@ -147,3 +147,28 @@ func TestCartSensorsNotTraverses(t *testing.T) {
 		}
 	}
 }
+
+// TestTwoSensorsAlongCableSaySo: two sensors 0.5 m apart pushed straight
+// along the cable. Six field values at each place along two tracks, less
+// the background's three, cannot give a current, an offset and a depth:
+// every fit failed ("the line lies above the ground given", currents
+// such as 46422 ± 19923443 A) with no word why (found in review). The run
+// now says that two parallel tracks cannot part the conductor from the
+// background and suggests a zig-zag, a third sensor or traverses, and
+// does not cut the walk into windows that cannot help.
+func TestTwoSensorsAlongCableSaySo(t *testing.T) {
+	dir := t.TempDir()
+	log := filepath.Join(dir, "pair.csv")
+	writeCartAlongLog(t, log, []float64{-0.25, 0.25})
+	doc := locateDoc(t, "--sensor-height", "0.3", log)
+	said := false
+	for _, w := range doc.Warnings {
+		said = said || strings.Contains(w, "two straight tracks 0.50 m apart") && strings.Contains(w, "zig-zag") && strings.Contains(w, "third sensor")
+	}
+	if !said {
+		t.Errorf("warnings %q: want two tracks named as unable to part the conductor from the background", doc.Warnings)
+	}
+	if len(doc.Groups) != 1 {
+		t.Errorf("%d groups: two tracks cut into windows that cannot help", len(doc.Groups))
+	}
+}

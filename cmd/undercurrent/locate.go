@@ -74,6 +74,7 @@ type locateOptions struct {
 	alongLen   float64
 	alongAuto  bool
 	alongWhy   string
+	alongTwo   []string // warnings of logs cut into windows that lie on two tracks
 	json       bool
 	out        string
 	minCover   float64
@@ -1035,7 +1036,11 @@ func runLocate(ctx context.Context, o *locateOptions, logs []string, progress io
 	}
 	// Readings walked along their length that one fit cannot describe:
 	// fitted again in along-route windows (alongwindows.go).
-	if l, why := autoAlongWindows(o, sv); l > 0 {
+	l, why, two := autoAlongWindows(o, sv)
+	if two != "" {
+		sv.alerts = append([]string{two}, sv.alerts...)
+	}
+	if l > 0 {
 		o.alongLen, o.alongAuto, o.alongWhy = l, true, why
 		if sv, err = readSurvey(ctx, o, logs); err != nil {
 			return nil, err
@@ -2894,6 +2899,7 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 	routeStartNote(doc)
 	// Logs cut into along-route windows (alongwindows.go).
 	doc.Notes = append(doc.Notes, sv.alongNotes...)
+	doc.Warnings = append(append([]string(nil), o.alongTwo...), doc.Warnings...)
 	// Groups whose readings fell in a gap of the base record.
 	baseGapsDocument(doc, sv)
 	// Groups of a log with an interrupted current fitted as it is.
