@@ -520,11 +520,16 @@ calibration in the result document and the report.
 Without --group-by every reading is fitted as one straight conductor with
 one current. When a log has a group column whose groups are traverses, or
 the readings run along the fitted line for more than 20 times its depth,
-the run warns and suggests --group-by. Without --despike, each log is
-checked for spikes (readings more than 10 robust standard deviations from
-the local trend of their neighbours); when at least 0.1% of readings
-are spikes the run warns and suggests --despike. These warnings come first
-in the summary's, the result document's and the report's warnings.
+the run warns and suggests --group-by. A cart of several sensors side by
+side, or a zig-zag, walked along a conductor (a swath narrow against its
+length) that one fit misses is fitted again in windows along the walk,
+each a station of the route, and a note says so (--along-window); a
+log's sensor column is never suggested for --group-by. Without
+--despike, each log is checked for spikes (readings more than 10 robust
+standard deviations from the local trend of their neighbours); when at
+least 0.1% of readings are spikes the run warns and suggests --despike.
+These warnings come first in the summary's, the result document's and
+the report's warnings.
 
 With -o DIR it writes results.json (the result document), results.csv,
 findings.csv (one row per finding), route.geojson and report.html (the crew
