@@ -164,6 +164,18 @@ func TestStackedSensorsNoted(t *testing.T) {
 	if w := strings.Join(d.Warnings, "\n"); strings.Contains(w, "mean height of all the sensors") {
 		t.Errorf("stacked sensors draw a warning, not a note: %q", w)
 	}
+	// One group without a name (no --group-by): the note read "... cart)
+	// in : depths ..." with an empty list (found in review).
+	lone := append([]Fit(nil), fits[0])
+	lone[0].Key = ""
+	d, err = Build(Document{}, lone, &BuildSettings{SensorHeight: 0.3})
+	if err != nil {
+		t.Fatal(err)
+	}
+	n = strings.Join(d.Notes, "\n")
+	if !strings.Contains(n, "(several sensors on one pole or cart): depths") {
+		t.Errorf("one unnamed group's notes %q: want the stacked-sensor note with no empty group list", n)
+	}
 	one := groundSurvey(t, 3, -4, 4, 0, flat, []float64{0.3}, inverse.Settings{})
 	d, err = Build(Document{}, one, &BuildSettings{SensorHeight: 0.3})
 	if err != nil {

@@ -340,8 +340,20 @@ func sensorHeightNotes(fits []Fit, h float64) []string {
 		}
 	}
 	if len(stacked) > 0 {
-		out = append(out, fmt.Sprintf("readings taken at one place stand at heights up to %.2f m apart (several sensors on one pole or cart) in %s: depths are below the mean height of all the sensors, and --sensor-height (%.2f m) is taken as that mean height above the ground, not one sensor's; here the mean lies %.2f m above the lowest sensor, so if %.2f m is the lowest sensor's height, give %.2f m",
-			spread, groupList(stacked), h, above, h, h+above))
+		// A run without --group-by fits one group with no name: the
+		// note read "... cart) in : depths ..." (found in review).
+		var named []string
+		for _, k := range stacked {
+			if k != "" {
+				named = append(named, k)
+			}
+		}
+		where := ""
+		if len(named) > 0 {
+			where = " in " + groupList(named)
+		}
+		out = append(out, fmt.Sprintf("readings taken at one place stand at heights up to %.2f m apart (several sensors on one pole or cart)%s: depths are below the mean height of all the sensors, and --sensor-height (%.2f m) is taken as that mean height above the ground, not one sensor's; here the mean lies %.2f m above the lowest sensor, so if %.2f m is the lowest sensor's height, give %.2f m",
+			spread, where, h, above, h, h+above))
 	}
 	return out
 }

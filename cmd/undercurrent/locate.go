@@ -67,12 +67,20 @@ type locateOptions struct {
 	mains           []float64 // mains frequencies fitted as nuisance beside another --freq
 	count           string
 	groupBy         string
-	json            bool
-	out             string
-	minCover        float64
-	coverCode       string
-	referenceZ      float64
-	hasRefZ         bool
+	// --along-window: alongText as given; alongLen the window length, m
+	// (0 auto, -1 off); alongAuto when the run chose it, alongWhy the
+	// reason (alongwindows.go).
+	alongText  string
+	alongLen   float64
+	alongAuto  bool
+	alongWhy   string
+	alongTwo   []string // warnings of logs cut into windows that lie on two tracks
+	json       bool
+	out        string
+	minCover   float64
+	coverCode  string
+	referenceZ float64
+	hasRefZ    bool
 	// sensorHeight is the bare --sensor-height, for every log not named
 	// in heightPerLog (--sensor-height LOG=H, perlog.go); sensorHeights
 	// the flag's values as given.
@@ -158,6 +166,7 @@ func (o *locateOptions) setFlags(fs *pflag.FlagSet) {
 	o.coil.add(fs)
 	fs.StringVar(&o.count, "count", "auto", "number of line conductors per fit, `N` (1-4) or auto")
 	fs.StringVar(&o.groupBy, "group-by", "", "fit each value of column `COL` separately (a traverse, a sensor, a time window) and build the along-route profile from the groups")
+	fs.StringVar(&o.alongText, "along-window", "auto", "without --group-by, cut readings walked along their length (a cart of several sensors side by side, or a zig-zag, along a conductor) into consecutive windows of `M` metres along the walk and fit each as a station of the route; auto does it when one fit of every reading misses them (the length then chosen from the swath's width), off never")
 	fs.BoolVar(&o.json, "json", false, "print the result document (JSON) on stdout")
 	fs.StringVarP(&o.out, "output", "o", "", "write results.json, results.csv, findings.csv, route.geojson and report.html into `DIR`")
 	fs.BoolVar(&o.csvDecimalComma, "csv-decimal-comma", false, "write results.csv and findings.csv with a semicolon between fields and a decimal comma (60,015), for a spreadsheet set to a language that writes decimals so (German, French, ...), which takes the usual 60.015 for 60015; text cells are as usual; needs -o")
@@ -327,6 +336,14 @@ func (o *locateOptions) check(fs *pflag.FlagSet) error {
 	}
 	if o.coverCode != "" && o.minCover == 0 {
 		return usageErrorf("--cover-code names where --min-cover comes from; give --min-cover too")
+	}
+	if v, err := parseAlongWindow(o.alongText); err != nil {
+		return err
+	} else {
+		o.alongLen = v
+	}
+	if o.groupBy != "" && o.alongLen > 0 {
+		return usageErrorf("--along-window cuts the readings into windows along the walk, and --group-by groups them by a column: give one")
 	}
 	if o.groupBy != "" {
 		for _, c := range append(append([]string(nil), o.read.columns...), o.read.columnsOld...) {
@@ -509,11 +526,16 @@ calibration in the result document and the report.
 Without --group-by every reading is fitted as one straight conductor with
 one current. When a log has a group column whose groups are traverses, or
 the readings run along the fitted line for more than 20 times its depth,
-the run warns and suggests --group-by. Without --despike, each log is
-checked for spikes (readings more than 10 robust standard deviations from
-the local trend of their neighbours); when at least 0.1% of readings
-are spikes the run warns and suggests --despike. These warnings come first
-in the summary's, the result document's and the report's warnings.
+the run warns and suggests --group-by. A cart of several sensors side by
+side, or a zig-zag, walked along a conductor (a swath narrow against its
+length) that one fit misses is fitted again in windows along the walk,
+each a station of the route, and a note says so (--along-window); a
+log's sensor column is never suggested for --group-by. Without
+--despike, each log is checked for spikes (readings more than 10 robust
+standard deviations from the local trend of their neighbours); when at
+least 0.1% of readings are spikes the run warns and suggests --despike.
+These warnings come first in the summary's, the result document's and
+the report's warnings.
 
 With -o DIR it writes results.json (the result document), results.csv,
 findings.csv (one row per finding), route.geojson and report.html (the crew
@@ -928,6 +950,9 @@ type survey struct {
 	// groupWarned is set when a log's group column drew the --group-by
 	// warning (then the span check is not needed).
 	groupWarned bool
+	// groupCol is the file's name of the column --group-by names (the
+	// first log's), for the warnings.
+	groupCol string
 	// groupLines holds, for each log whose group column drew that
 	// warning, the warning and its groups' directions of travel, so that
 	// the warning can be reworded once the fit is known (alongGroups).
@@ -963,6 +988,9 @@ type survey struct {
 	// say which logs' on-state readings alone were fitted.
 	interrupted map[string]bool
 	intNotes    []string
+	// alongNotes say the logs were cut into along-route windows
+	// (alongwindows.go).
+	alongNotes []string
 	// leaky holds, for the AC logs in which a fitted mains line too strong
 	// for its distance leaks into the signal, why their groups are not
 	// sound (demodPlan.strongLine).
@@ -1016,6 +1044,24 @@ func runLocate(ctx context.Context, o *locateOptions, logs []string, progress io
 	}
 	if err := fitGroups(ctx, o, sv, progress); err != nil {
 		return nil, err
+	}
+	// Readings walked along their length that one fit cannot describe:
+	// fitted again in along-route windows (alongwindows.go).
+	l, why, two := autoAlongWindows(o, sv)
+	if two != "" {
+		sv.alerts = append([]string{two}, sv.alerts...)
+	}
+	if l > 0 {
+		o.alongLen, o.alongAuto, o.alongWhy = l, true, why
+		if sv, err = readSurvey(ctx, o, logs); err != nil {
+			return nil, err
+		}
+		if err := applyCurrentReference(ctx, o, sv); err != nil {
+			return nil, withWarnings(err, sv.alerts, sv.warnings)
+		}
+		if err := fitGroups(ctx, o, sv, progress); err != nil {
+			return nil, err
+		}
 	}
 	// A median |B| above the Earth's band that the fitted conductors'
 	// field accounts for is not a unit's fault (bandfield.go).
@@ -1295,6 +1341,12 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		if o.groupBy != "" && s.Group == nil {
 			return nil, noGroupColumnError(path, o.groupBy, s)
 		}
+		if o.groupBy != "" && sv.groupCol == "" {
+			sv.groupCol = o.groupBy
+			if o.groupBy == ingest.ColGroup {
+				sv.groupCol = baseGroupColumn(path, opts)
+			}
+		}
 		if s.Group == nil && len(s.Unread) > 0 {
 			// For the span warning's hint (groupColumnHint).
 			sv.unread = append(sv.unread, unreadColumns{path, s.Unread})
@@ -1448,11 +1500,15 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		if s.Frame != ingest.FrameENU {
 			enu = false
 		}
-		if o.groupBy == "" {
+		if !o.grouped() {
 			if w := groupColumnWarning(path, groupColumnName(o), s); w != "" {
+				// Worded with the file's own name of the column (a
+				// "sensor" column read as the group column).
+				name := baseGroupColumn(path, opts)
+				w = groupColumnWarning(path, name, s)
 				sv.alerts = append(sv.alerts, w)
 				sv.groupWarned = true
-				sv.groupLines = append(sv.groupLines, groupLines{warning: w, path: path, name: groupColumnName(o), dirs: groupDirections(s)})
+				sv.groupLines = append(sv.groupLines, groupLines{warning: w, path: path, name: name, dirs: groupDirections(s)})
 			}
 		}
 		if !o.despike {
@@ -1575,6 +1631,11 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 			}
 			if w != "" {
 				sv.alerts = append(sv.alerts, w)
+			}
+		}
+		if o.windowed() {
+			if note := setAlongWindows(o, s, len(logs)); note != "" {
+				sv.alongNotes = append(sv.alongNotes, note)
 			}
 		}
 		// Demodulation takes no context either.
@@ -2381,7 +2442,7 @@ func nedToENUCalibration(c *calibrate.Calibration) *calibrate.Calibration {
 // groups (in order of first appearance).
 func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *ingest.Samples) error {
 	get := func(key string) *group {
-		if o.groupBy == "" {
+		if !o.grouped() {
 			key = ""
 		}
 		g := index[key]
@@ -2399,7 +2460,7 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 	defer func() {
 		if ungrouped > 0 {
 			sv.warnings = append(sv.warnings, fmt.Sprintf("%s: %d %s with an empty %s left out (no group to fit them in)",
-				s.Source, ungrouped, map[bool]string{true: "AC windows", false: "readings"}[sv.ac], o.groupBy))
+				s.Source, ungrouped, map[bool]string{true: "AC windows", false: "readings"}[sv.ac], map[bool]string{true: "position", false: o.groupBy}[o.windowed()]))
 		}
 	}()
 	if !sv.ac {
@@ -2408,7 +2469,7 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 			if s.Group != nil {
 				key = s.Group[i]
 			}
-			if o.groupBy != "" && key == "" {
+			if o.grouped() && key == "" {
 				ungrouped++
 				continue
 			}
@@ -2474,7 +2535,7 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 		sv.doc.Signal = report.Signal{Mode: report.SignalAC, FrequencyHz: res.Freq, WindowS: res.Window, NuisanceHz: res.Nuisance}
 	}
 	for _, w := range res.Windows {
-		if o.groupBy != "" && w.Group == "" {
+		if o.grouped() && w.Group == "" {
 			ungrouped++
 			continue
 		}
@@ -2714,10 +2775,15 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 			}
 		}
 	}
-	if o.groupBy == "" && !sv.groupWarned {
+	if !o.grouped() && !sv.groupWarned {
 		if w := spanWarning(sv); w != "" {
 			alerts = append(alerts, w+groupColumnHint(o, sv))
 		}
+	}
+	// Groups that are tracks along the walk, each blind to a conductor
+	// along it (surveychecks.go).
+	if w := alongTracksWarning(o, sv, sv.groupCol); w != "" {
+		alerts = append(alerts, w)
 	}
 	if w := splitGroupsWarning(sv); w != "" {
 		alerts = append(alerts, w)
@@ -2842,6 +2908,9 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 	// The group the route starts at, in the warning that the order of
 	// the logs given set it (loggroups.go).
 	routeStartNote(doc)
+	// Logs cut into along-route windows (alongwindows.go).
+	doc.Notes = append(doc.Notes, sv.alongNotes...)
+	doc.Warnings = append(append([]string(nil), o.alongTwo...), doc.Warnings...)
 	// Groups whose readings fell in a gap of the base record.
 	baseGapsDocument(doc, sv)
 	// Groups of a log with an interrupted current fitted as it is.

@@ -118,6 +118,22 @@ func groupColumnWarning(path, name string, s *ingest.Samples) string {
 	if len(order) < 2 || moving < 2 {
 		return ""
 	}
+	values := groupValues(order)
+	if why := alongTracks(s); why != "" {
+		// Sensors of one cart, or tracks along the walk: grouping by
+		// them fits each track alone, which cannot see a conductor
+		// along it (found in review: -325 A at 11 m and a false change
+		// of sign of 645 A from a 20 A cable).
+		return fmt.Sprintf("%s: the log's column %q holds %d values (%s) that are %s, not traverses across the route: do not fit them one by one (--group-by %s), since a track running along a conductor cannot see it on its own (its field is the same at every reading of a track parallel to it, and the background takes it); here every reading was fitted as one straight conductor with one current, which a route that bends, changes depth or loses current does not fit: for a walk along the conductor, fit the readings in windows along the route (--along-window M, which the run uses by itself when the one fit misses a narrow swath), or walk traverses across it",
+			path, name, len(order), values, why, name)
+	}
+	return fmt.Sprintf("%s: the log has a group column %q with %d values (%s), but without --group-by every reading was fitted as one straight conductor with one current, which a route that bends, changes depth or loses current does not fit: fit each traverse with --group-by %s",
+		path, name, len(order), values, name)
+}
+
+// groupValues words a group column's values, in order of first
+// appearance: the first two, and the third or the last.
+func groupValues(order []string) string {
 	values := order[0] + ", " + order[1]
 	switch len(order) {
 	case 2:
@@ -126,8 +142,144 @@ func groupColumnWarning(path, name string, s *ingest.Samples) string {
 	default:
 		values += " ... " + order[len(order)-1]
 	}
-	return fmt.Sprintf("%s: the log has a group column %q with %d values (%s), but without --group-by every reading was fitted as one straight conductor with one current, which a route that bends, changes depth or loses current does not fit: fit each traverse with --group-by %s",
-		path, name, len(order), values, name)
+	return values
+}
+
+// trackAngle is the largest angle, degrees, between a group's straight
+// track and the direction of the whole walk (the principal direction of
+// every reading in plan) for which the group is taken as a track along
+// the walk, and so along a conductor the walk follows.
+const trackAngle = 20
+
+// elongatedRatio is the largest ratio of a walk's RMS spread across its
+// principal direction to its spread along it for which it has a direction
+// (a route followed), for the test of tracks along it.
+const elongatedRatio = 0.3
+
+// alongTracks says what the groups of s are when they are tracks along the
+// walk that cannot each see a conductor along it: "sensors logged together
+// side by side along the walk" when their readings overlap in time and
+// their tracks run side by side along the walk's direction (within
+// trackAngle), "tracks running along the walk" when they follow one
+// another so; "" otherwise (traverses across it, a walk with no one
+// direction, groups that are not straight tracks).
+func alongTracks(s *ingest.Samples) string {
+	dirs := groupDirections(s)
+	if len(dirs) < 2 {
+		return ""
+	}
+	f := footprintOf(s.X, s.Y)
+	if f.n == 0 || !(f.across < elongatedRatio*f.along) {
+		return ""
+	}
+	cosMin := math.Cos(trackAngle * math.Pi / 180)
+	for _, d := range dirs {
+		if math.Abs(d[0]*f.t[0]+d[1]*f.t[1]) < cosMin {
+			return ""
+		}
+	}
+	if loggedTogether(s) {
+		return "sensors logged together, side by side along the walk"
+	}
+	return "tracks running along the walk"
+}
+
+// loggedTogether reports whether the groups of s are sensors logged at
+// the same time: every group's span of time overlaps another's by more
+// than half the shorter span.
+func loggedTogether(s *ingest.Samples) bool {
+	if s.Group == nil || s.NoTime {
+		return false
+	}
+	type span struct{ lo, hi float64 }
+	by := map[string]*span{}
+	var order []string
+	for i, g := range s.Group {
+		t := s.Time[i]
+		if g == "" || math.IsNaN(t) {
+			continue
+		}
+		sp := by[g]
+		if sp == nil {
+			sp = &span{t, t}
+			by[g] = sp
+			order = append(order, g)
+		}
+		sp.lo, sp.hi = math.Min(sp.lo, t), math.Max(sp.hi, t)
+	}
+	if len(order) < 2 {
+		return false
+	}
+	for _, a := range order {
+		ok := false
+		for _, b := range order {
+			if a == b {
+				continue
+			}
+			p, q := by[a], by[b]
+			over := math.Min(p.hi, q.hi) - math.Max(p.lo, q.lo)
+			if over > 0.5*math.Min(p.hi-p.lo, q.hi-q.lo) {
+				ok = true
+				break
+			}
+		}
+		if !ok {
+			return false
+		}
+	}
+	return true
+}
+
+// alongTracksWarning returns, for a run with --group-by whose groups are
+// straight tracks side by side along the walk (within trackAngle of the
+// walk's direction, itself elongated) and at least one of whose fits
+// failed, finds no current 3 sigma from zero, or misses its readings by
+// more than alongMisfit times their noise (a cart pushed across a cable
+// fits each sensor's track soundly), the warning that such tracks cannot each see a conductor along
+// them; "" otherwise. name is the file's name of the group column. The
+// fits of a cart's four sensors grouped by the sensor column turned off
+// the tracks (-325 A at 11 m, a false change of sign of 645 A), so the
+// per-group "cannot be seen from it" note never came (found in review).
+func alongTracksWarning(o *locateOptions, sv *survey, name string) string {
+	if o.groupBy == "" || len(sv.groups) < 2 || sv.ac {
+		return ""
+	}
+	var x, y []float64
+	bad := 0
+	var dirs [][2]float64
+	for _, g := range sv.groups {
+		gx, gy := make([]float64, len(g.points)), make([]float64, len(g.points))
+		for i, p := range g.points {
+			gx[i], gy[i] = p[0], p[1]
+		}
+		x, y = append(x, gx...), append(y, gy...)
+		f := footprintOf(gx, gy)
+		if f.n == 0 || !(f.along > 0) || !(f.across < straightRatio*f.along) {
+			return "" // not a straight track
+		}
+		dirs = append(dirs, f.t)
+		noise := g.measuredNoise(false)
+		if g.err != nil || g.res == nil || len(g.res.Sources) == 0 || noise > 0 && g.res.RMS > alongMisfit*noise ||
+			!(math.Abs(g.res.Sources[0].Current) > 3*g.res.Sources[0].CurrentSigma) {
+			bad++
+		}
+	}
+	f := footprintOf(x, y)
+	if bad == 0 || f.n == 0 || !(f.across < elongatedRatio*f.along) {
+		return ""
+	}
+	cosMin := math.Cos(trackAngle * math.Pi / 180)
+	for _, d := range dirs {
+		if math.Abs(d[0]*f.t[0]+d[1]*f.t[1]) < cosMin {
+			return ""
+		}
+	}
+	keys := make([]string, len(sv.groups))
+	for i, g := range sv.groups {
+		keys[i] = g.key
+	}
+	return fmt.Sprintf("the %d groups of column %q (%s) are straight tracks running side by side along the walk (each within %d° of its direction), as the sensors of a cart pushed along a conductor: a track running along a conductor cannot see it on its own (its field is the same at every reading of a track parallel to it, and the background takes it), so these fits' currents, depths and any change between them mean nothing (%d of them find no current or miss their readings by more than %g times the noise); fit the readings without --group-by, in windows along the route (--along-window M, or by itself when the one fit misses), or walk traverses across the conductor",
+		len(sv.groups), name, groupValues(keys), trackAngle, bad, alongMisfit)
 }
 
 // groupLines is a log whose group column drew groupColumnWarning: the
