@@ -67,6 +67,9 @@ type levels struct {
 	slope, slopeSigma                      float64
 	at, atSigma, width                     float64
 	nBefore, nAfter                        int
+	// singleBefore and singleAfter count the stations of nBefore and
+	// nAfter that are sound (levelSound) and not a pair's net current.
+	singleBefore, singleAfter int
 	// sharpStep and sharpSigma are the best sharp step's size and sigma
 	// (its own, Birge-scaled): a partial reading beside the step only
 	// ever makes it smaller, so it tells whether there is a step at all
@@ -253,6 +256,18 @@ func plateau(u []*Placed, set *Settings, ia, ib, lo, hi int) levels {
 			lv.nBefore++
 		} else {
 			lv.nAfter++
+		}
+		for _, i := range idx {
+			if u[i].Chainage == p.x {
+				if levelSound(u[i], set) && !u[i].PairNet {
+					if p.x < f.xf {
+						lv.singleBefore++
+					} else {
+						lv.singleAfter++
+					}
+				}
+				break
+			}
 		}
 	}
 	lv.before, lv.after = f.c[0], f.c[1]

@@ -301,16 +301,30 @@ func detect(u []*Placed, set *Settings) *detection {
 		// past it read 34.7 ± 4.0 A as a go-and-return pair's net, a rise
 		// and a fall neither beyond its sigma (review rg26a,
 		// obj-s8-small-step-20 seed 1).
+		//
+		// Only about a station truly unusable, though: a go-and-return
+		// pair's net, or a fit whose misfit leaves its current unable to
+		// tell the levels (blindAt), and only where the levels either side
+		// rest on two sound single-conductor stations each (spanSound).
+		// Else a steep bore exit's misfit run (three poor fits between a
+		// wrong but sound fit and a pair's net) was taken for a 10.5 A
+		// earth fault (review rg26c, steep79 seed 1).
 		best, bestZ := -1, spanK(k, m-1)
 		for j := 0; j+1 < m; j++ {
-			poor := !clean(u[j+1], set)
-			if d.isStep[j] || d.isStep[j+1] || (d.dI[j] > 0) != (d.dI[j+1] > 0) && !poor {
+			opposite := (d.dI[j] > 0) != (d.dI[j+1] > 0)
+			if d.isStep[j] || d.isStep[j+1] || opposite && clean(u[j+1], set) {
 				continue
 			}
 			z, delta := spanTest(u, d.isStep, j, set)
-			if z > bestZ && ((delta > 0) == (d.dI[j] > 0) || poor) {
-				best, bestZ = j, z
+			if !(z > bestZ) {
+				continue
 			}
+			if opposite || (delta > 0) != (d.dI[j] > 0) {
+				if !blindAt(u[j+1], delta, set) || !spanSound(u, d.isStep, j, set) {
+					continue
+				}
+			}
+			best, bestZ = j, z
 		}
 		if best < 0 {
 			return d
@@ -374,6 +388,48 @@ func spanTest(u []*Placed, isStep []bool, j int, set *Settings) (z, step float64
 		return 0, 0
 	}
 	return math.Abs(step) / math.Sqrt(v), step
+}
+
+// blindAt reports whether station p, poor (not clean), says nothing of
+// a change of step (A) about it: a go-and-return pair's net current, not
+// one conductor's, or a fit whose current, weighed at its misfit
+// (misfitSigma), cannot tell levels step apart.
+func blindAt(p *Placed, step float64, set *Settings) bool {
+	if clean(p, set) {
+		return false
+	}
+	return p.PairNet || !(math.Abs(step) > set.stepK()*misfitSigma(p, set))
+}
+
+// spanSound reports whether the levels of spanTest's span j each rest on
+// at least two sound stations (levelSound) that are not a pair's net.
+func spanSound(u []*Placed, isStep []bool, j int, set *Settings) bool {
+	nb, n := 0, 0
+	for i := j; i >= 0 && n < spanStations; i-- {
+		if i == j || levelSound(u[i], set) {
+			n++
+			if levelSound(u[i], set) && !u[i].PairNet {
+				nb++
+			}
+		}
+		if i > 0 && isStep[i-1] {
+			break
+		}
+	}
+	na := 0
+	n = 0
+	for i := j + 2; i < len(u) && n < spanStations; i++ {
+		if i == j+2 || levelSound(u[i], set) {
+			n++
+			if levelSound(u[i], set) && !u[i].PairNet {
+				na++
+			}
+		}
+		if i < len(isStep) && isStep[i] {
+			break
+		}
+	}
+	return nb >= 2 && na >= 2
 }
 
 // spanK is the threshold of the span test: the Bonferroni bound for the n
@@ -453,7 +509,10 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64, bs 
 		// Stations beside a strained one share the model's error that
 		// strains it, and so do their neighbours on the plateau: the
 		// level carries the largest such shift (strain.go).
-		sb, sa := besideShift(uo, set, runs[r][0], lo, -1), besideShift(uo, set, runs[r][1], hi, 1)
+		// (Each side's shared shift sheds the largest only where both
+		// levels are clear: besideShift.)
+		clear := pl.singleBefore >= 2 && pl.singleAfter >= 2
+		sb, sa := besideShift(uo, set, runs[r][0], lo, -1, clear), besideShift(uo, set, runs[r][1], hi, 1, clear)
 		if a := pl.across; a != nil && (a.step > 0) == (pl.step > 0) {
 			// Where the transition's width, left free, leaves the size
 			// short of StepK of its sigma, the change across the
@@ -657,14 +716,26 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64, bs 
 		// the traverses either side misfit by the step's own field
 		// (reduced chi-square 13-14) and read within 0.4 A of their
 		// levels, 9 A apart.
-		blind := func(p *Placed) bool {
-			return !clean(p, set) && !(math.Abs(size(r).step) > set.stepK()*misfitSigma(p, set))
+		//
+		// Nor is a poor station passed whose current, however uncertain
+		// at its misfit, sits nearer its own side's level than the
+		// other's: at a tee (tee-service) T04 and T05 misfit by 16 and
+		// 13 A of sigma but read 22.1 and 13.7 A against levels of 20.2
+		// and 14.8 A, and the bracket between them, 2 m, held the tee;
+		// passed, it grew to T02-T07, 10 m (review rg26c). A pair's net
+		// current is always passed.
+		pl0 := size(r)
+		blind := func(p *Placed, own, other float64) bool {
+			if !blindAt(p, pl0.step, set) {
+				return false
+			}
+			return p.PairNet || !(math.Abs(p.Current-own) < math.Abs(p.Current-other))
 		}
 		ia, ib := runs[r][0], runs[r][1]
-		for ia > lo && blind(u[ia]) {
+		for ia > lo && blind(u[ia], pl0.before, pl0.after) {
 			ia--
 		}
-		for ib < hi && blind(u[ib]) {
+		for ib < hi && blind(u[ib], pl0.after, pl0.before) {
 			ib++
 		}
 		if !clean(u[ia], set) {

@@ -256,7 +256,7 @@ func levelSound(p *Placed, set *Settings) bool {
 // five sound stations past it, 12.04 ± 0.011 A) lent the level its shift
 // of 12.9 A, and a 13 A loss with levels clear on five stations each side
 // went unreported (review rg26a, obj-s1-single-20 seed 2).
-func besideShift(u []*Placed, set *Settings, i, end, dir int) float64 {
+func besideShift(u []*Placed, set *Settings, i, end, dir int, clear bool) float64 {
 	var worst, field, sw, swa float64
 	n := 0
 	for k := i; k*dir <= end*dir && k >= 0 && k < len(u) && n < plateauStations+maxTransition; k += dir {
@@ -279,7 +279,15 @@ func besideShift(u []*Placed, set *Settings, i, end, dir int) float64 {
 			swa += a / (s * s)
 		}
 	}
-	if field > 0 && sw > 0 {
+	// Only where the levels either side each rest on two sound
+	// single-conductor stations or more (clear) does a side shed the
+	// largest shift: beside a steep bore exit the level before a misfit
+	// run rested on one sound but wrong fit (10.4 A where 20 A ran) and a
+	// pair's net current, the level past it on six sound fits, and a
+	// change the model's error accounts for (an info) became an earth
+	// fault warning once the six shed theirs (review rg26c, steep79 seed
+	// 1).
+	if field > 0 && sw > 0 && clear {
 		return math.Min(worst, field*swa/sw)
 	}
 	return worst
