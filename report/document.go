@@ -875,6 +875,11 @@ type Finding struct {
 	// conductor, and Conductor is 0. Its chainage is conductor 1's where
 	// the line was seen.
 	Lone bool `json:"lone_line,omitempty"`
+	// ID is the finding's id (FindingIDs), set when the document is
+	// written: results.json, findings.csv and route.geojson give the same
+	// id, so the three files join on it. Empty in a document being built
+	// or read back (ReadJSON clears it: it is made again on writing).
+	ID string `json:"id,omitempty"`
 }
 
 // Value is a number with its sigma and unit.

@@ -305,7 +305,8 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 			fc.Features = append(fc.Features, feature{Type: "Feature", Geometry: geom, Properties: props})
 		}
 	}
-	for _, f := range d.Findings {
+	findingIDs := d.FindingIDs()
+	for fi, f := range d.Findings {
 		props := map[string]any{
 			"feature":         "finding",
 			"kind":            f.Kind,
@@ -343,7 +344,7 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 		if g, ok := d.stretchLine(&f); ok {
 			geom = g
 		}
-		fc.Features = append(fc.Features, feature{Type: "Feature", Geometry: geom, Properties: props})
+		fc.Features = append(fc.Features, feature{Type: "Feature", ID: findingIDs[fi], Geometry: geom, Properties: props})
 	}
 	// What a map viewer must show with every feature: viewers drop a
 	// FeatureCollection's foreign members, so the cautions, the run's
@@ -407,10 +408,15 @@ type featureCollection struct {
 // (conductor 1's Point at group T10, its source 1), "finding/current-step/
 // c1/T07+T08", so that an asset register appending runs has a key that
 // does not hang on the features' order; a second feature with the same
-// parts gets "#2", a third "#3", in the order written.
+// parts gets "#2", a third "#3", in the order written. A feature that
+// has its id already keeps it: a finding's is FindingIDs', which
+// results.json and findings.csv give too.
 func setFeatureIDs(fs []feature) {
 	seen := map[string]int{}
 	for i := range fs {
+		if fs[i].ID != "" {
+			continue
+		}
 		p := fs[i].Properties
 		parts := []string{strings.ReplaceAll(fmt.Sprint(p["feature"]), " ", "-")}
 		if k, ok := p["kind"].(string); ok {

@@ -71,6 +71,10 @@ func ReadJSON(r io.Reader, name string) (*Document, error) {
 	if err := d.Validate(); err != nil {
 		return nil, fmt.Errorf("%w (in %s)", err, name)
 	}
+	// A finding's id is made again on writing, from the findings then.
+	for i := range d.Findings {
+		d.Findings[i].ID = ""
+	}
 	return &d, nil
 }
 
@@ -172,8 +176,10 @@ func (d *Document) normalized() *Document {
 	if c.Inputs == nil {
 		c.Inputs = []Input{}
 	}
-	if c.Findings == nil {
-		c.Findings = []Finding{}
+	c.Findings = make([]Finding, len(d.Findings))
+	copy(c.Findings, d.Findings)
+	for i, id := range d.FindingIDs() {
+		c.Findings[i].ID = id
 	}
 	c.Groups = make([]Group, len(d.Groups))
 	copy(c.Groups, d.Groups)
