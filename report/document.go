@@ -764,6 +764,10 @@ type Station struct {
 	CoverSigma *float64 `json:"cover_sigma_m,omitempty"`
 	// Used is true when the station entered the step and cover checks.
 	Used bool `json:"used"`
+	// LeftOut is, on a station not Used, why it was left out, as
+	// results.csv's left_out and route.geojson's give it; set when the
+	// document is written (normalized), absent on a used station.
+	LeftOut string `json:"left_out,omitempty"`
 	// UnderCentre is true when Point is the conductor's point under the
 	// centre of the group's readings in plan, not where it crosses their
 	// traverse: the readings do not lie along one traverse (fixed

@@ -428,7 +428,9 @@ func setFeatureIDs(fs []feature) {
 		if g, ok := p["group"].(string); ok && g != "" {
 			parts = append(parts, g)
 		}
-		if s, ok := p["source"]; ok {
+		if s, ok := p["source"]; ok && p["feature"] != "failed fit" {
+			// A failed fit's id stays failed-fit/GROUP, as before it
+			// gave its source.
 			parts = append(parts, fmt.Sprint(s))
 		}
 		if a, ok := p["from_group"].(string); ok {
@@ -979,6 +981,10 @@ func (d *Document) failedFitFeature(g *Group) feature {
 	var first *Source
 	if len(g.Sources) > 0 {
 		first = &g.Sources[0]
+	}
+	if first != nil {
+		// Joins results.csv's row (group, source 1) of the failed fit.
+		props["source"] = 1
 	}
 	if st := d.stationOf(g, 0, first); st != nil {
 		props["used"] = st.Used
