@@ -40,7 +40,9 @@ func (e *Error) Error() string {
 	if e.Batch >= 0 {
 		b.WriteString(batchRow(e.Batch, e.Row, e.FileRow))
 	}
-	if e.Column != "" {
+	// A mapping's error names its column already ("mapping time=zz: no
+	// column ...").
+	if e.Column != "" && !strings.HasPrefix(e.Msg, "mapping "+e.Column+"=") {
 		b.WriteString(": column ")
 		b.WriteString(e.Column)
 	}

@@ -387,6 +387,11 @@ func (p *plan) mappings() []ColumnMapping {
 // joinedTime finds the two columns of a time mapping DATE+TIME (spec),
 // trying each "+" in turn so that a name holding one still matches.
 func (p *plan) joinedTime(spec string, find func(string) int) (date, clock int, err error) {
+	defer func() {
+		if e, ok := err.(*Error); ok {
+			e.Column = canonNames[cTime] // the column mapped
+		}
+	}()
 	for k := 0; k < len(spec); k++ {
 		if spec[k] != '+' {
 			continue
@@ -483,7 +488,9 @@ func newPlan(file, format string, header []string, types []arrow.DataType, meta 
 			continue
 		}
 		if i < 0 {
-			return nil, fileErr(file, nil, "mapping %s=%s: no column %q (columns found: %s)", canonNames[c], name, name, columnList(header))
+			e := fileErr(file, nil, "mapping %s=%s: no column %q (columns found: %s)", canonNames[c], name, name, columnList(header))
+			e.Column = canonNames[c] // the column mapped, for --json's column field
+			return nil, e
 		}
 		p.src[c] = i
 	}

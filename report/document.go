@@ -820,6 +820,10 @@ type Station struct {
 	CoverSigma *float64 `json:"cover_sigma_m,omitempty"`
 	// Used is true when the station entered the step and cover checks.
 	Used bool `json:"used"`
+	// LeftOut is, on a station not Used, why it was left out, as
+	// results.csv's left_out and route.geojson's give it; set when the
+	// document is written (normalized), absent on a used station.
+	LeftOut string `json:"left_out,omitempty"`
 	// UnderCentre is true when Point is the conductor's point under the
 	// centre of the group's readings in plan, not where it crosses their
 	// traverse: the readings do not lie along one traverse (fixed
@@ -931,6 +935,11 @@ type Finding struct {
 	// conductor, and Conductor is 0. Its chainage is conductor 1's where
 	// the line was seen.
 	Lone bool `json:"lone_line,omitempty"`
+	// ID is the finding's id (FindingIDs), set when the document is
+	// written: results.json, findings.csv and route.geojson give the same
+	// id, so the three files join on it. Empty in a document being built
+	// or read back (ReadJSON clears it: it is made again on writing).
+	ID string `json:"id,omitempty"`
 }
 
 // Value is a number with its sigma and unit.

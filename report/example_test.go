@@ -123,7 +123,8 @@ func ExampleWriteJSON() {
 	//       "chainage_from_m": 0,
 	//       "chainage_to_m": 0,
 	//       "position_m": [2.41, 0, -1.12],
-	//       "message": "example only"
+	//       "message": "example only",
+	//       "id": "finding/shallow-cover/c1"
 	//     }
 	//   ]
 	// }

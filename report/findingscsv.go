@@ -15,6 +15,7 @@ var findingsHeader = []string{
 	"severity", "kind", "conductor", "chainage_from_m", "chainage_to_m", "groups",
 	"east_m", "north_m", "up_m", "lon_deg", "lat_deg", "values", "message",
 	"value_name", "value", "value_sigma", "value_unit", "cover_m", "cover_sigma_m",
+	"id",
 }
 
 // findingsMessage is the index of findings.csv's message column.
@@ -38,6 +39,9 @@ var findingsMessage = slices.Index(findingsHeader, "message")
 // "cover" or "depth below ground" (a shallow stretch's, a weak source's,
 // an object's), empty for a finding without one. They were in the values
 // text alone, where a crew could not sort by cover (found in review).
+// Last, id: the finding's id (FindingIDs), as results.json's findings[].id
+// and route.geojson's finding feature give it, so the files join on it
+// (empty on the cautions' and warnings' rows; added at the end).
 // Numbers are written as results.csv writes them: a sigma to six
 // significant digits, a value to two digits past its sigma's leading one
 // (six significant digits without a sigma), cover to the millimetre at
@@ -100,7 +104,8 @@ func WriteFindingsCSVWith(w io.Writer, d *Document, opt CSVOptions) error {
 			return fmt.Errorf("report: writing findings CSV: %w", err)
 		}
 	}
-	for _, f := range d.Findings {
+	ids := d.FindingIDs()
+	for fi, f := range d.Findings {
 		conductor := "1"
 		switch {
 		case f.Lone:
@@ -132,6 +137,7 @@ func WriteFindingsCSVWith(w io.Writer, d *Document, opt CSVOptions) error {
 			textCell(strings.Join(vals, "; ")), textCell(f.Message),
 		}
 		row = append(row, findingNumbers(f.Values)...)
+		row = append(row, textCell(ids[fi]))
 		if err := cw.Write(row); err != nil {
 			return fmt.Errorf("report: writing findings CSV: %w", err)
 		}

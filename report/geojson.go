@@ -312,7 +312,8 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 			fc.Features = append(fc.Features, feature{Type: "Feature", Geometry: geom, Properties: props})
 		}
 	}
-	for _, f := range d.Findings {
+	findingIDs := d.FindingIDs()
+	for fi, f := range d.Findings {
 		props := map[string]any{
 			"feature":         "finding",
 			"kind":            f.Kind,
@@ -350,7 +351,7 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 		if g, ok := d.stretchLine(&f); ok {
 			geom = g
 		}
-		fc.Features = append(fc.Features, feature{Type: "Feature", Geometry: geom, Properties: props})
+		fc.Features = append(fc.Features, feature{Type: "Feature", ID: findingIDs[fi], Geometry: geom, Properties: props})
 	}
 	// What a map viewer must show with every feature: viewers drop a
 	// FeatureCollection's foreign members, so the cautions, the run's
@@ -420,10 +421,15 @@ type featureCollection struct {
 // (conductor 1's Point at group T10, its source 1), "finding/current-step/
 // c1/T07+T08", so that an asset register appending runs has a key that
 // does not hang on the features' order; a second feature with the same
-// parts gets "#2", a third "#3", in the order written.
+// parts gets "#2", a third "#3", in the order written. A feature that
+// has its id already keeps it: a finding's is FindingIDs', which
+// results.json and findings.csv give too.
 func setFeatureIDs(fs []feature) {
 	seen := map[string]int{}
 	for i := range fs {
+		if fs[i].ID != "" {
+			continue
+		}
 		p := fs[i].Properties
 		parts := []string{strings.ReplaceAll(fmt.Sprint(p["feature"]), " ", "-")}
 		if k, ok := p["kind"].(string); ok {
@@ -435,7 +441,9 @@ func setFeatureIDs(fs []feature) {
 		if g, ok := p["group"].(string); ok && g != "" {
 			parts = append(parts, g)
 		}
-		if s, ok := p["source"]; ok {
+		if s, ok := p["source"]; ok && p["feature"] != "failed fit" {
+			// A failed fit's id stays failed-fit/GROUP, as before it
+			// gave its source.
 			parts = append(parts, fmt.Sprint(s))
 		}
 		if a, ok := p["from_group"].(string); ok {
@@ -986,6 +994,10 @@ func (d *Document) failedFitFeature(g *Group) feature {
 	var first *Source
 	if len(g.Sources) > 0 {
 		first = &g.Sources[0]
+	}
+	if first != nil {
+		// Joins results.csv's row (group, source 1) of the failed fit.
+		props["source"] = 1
 	}
 	if st := d.stationOf(g, 0, first); st != nil {
 		props["used"] = st.Used

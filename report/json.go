@@ -71,6 +71,21 @@ func ReadJSON(r io.Reader, name string) (*Document, error) {
 	if err := d.Validate(); err != nil {
 		return nil, fmt.Errorf("%w (in %s)", err, name)
 	}
+	// A finding's id and a station's reason for being left out are made
+	// again on writing, from the document then.
+	for i := range d.Findings {
+		d.Findings[i].ID = ""
+	}
+	if d.Route != nil {
+		for i := range d.Route.Stations {
+			d.Route.Stations[i].LeftOut = ""
+		}
+	}
+	for k := range d.Conductors {
+		for i := range d.Conductors[k].Route.Stations {
+			d.Conductors[k].Route.Stations[i].LeftOut = ""
+		}
+	}
 	return &d, nil
 }
 
@@ -172,8 +187,10 @@ func (d *Document) normalized() *Document {
 	if c.Inputs == nil {
 		c.Inputs = []Input{}
 	}
-	if c.Findings == nil {
-		c.Findings = []Finding{}
+	c.Findings = make([]Finding, len(d.Findings))
+	copy(c.Findings, d.Findings)
+	for i, id := range d.FindingIDs() {
+		c.Findings[i].ID = id
 	}
 	c.Groups = make([]Group, len(d.Groups))
 	copy(c.Groups, d.Groups)
@@ -188,6 +205,7 @@ func (d *Document) normalized() *Document {
 	if d.Route != nil {
 		c.Route = d.withoutFailedEstimates(d.Route)
 		c.Route.Gaps = RouteGaps(d.Route)
+		d.setLeftOut(c.Route, 0)
 	}
 	if len(d.Conductors) > 0 {
 		c.Conductors = make([]Track, len(d.Conductors))
@@ -195,9 +213,21 @@ func (d *Document) normalized() *Document {
 		for i := range c.Conductors {
 			c.Conductors[i].Route = *d.withoutFailedEstimates(&d.Conductors[i].Route)
 			c.Conductors[i].Route.Gaps = RouteGaps(&d.Conductors[i].Route)
+			d.setLeftOut(&c.Conductors[i].Route, c.Conductors[i].Number)
 		}
 	}
 	return &c
+}
+
+// setLeftOut sets the reason on each station of r (a copy, of conductor
+// n: 0 for the route, else a further conductor's Track.Number) that the
+// route left out, as results.csv's left_out gives it, so that results.json
+// alone says why (found in review: only results.csv and route.geojson
+// did). A used station's is cleared.
+func (d *Document) setLeftOut(r *Route, n int) {
+	for i := range r.Stations {
+		r.Stations[i].LeftOut = d.leftOut(&r.Stations[i], n)
+	}
 }
 
 // withoutFailedEstimates returns a copy of route r in which each station

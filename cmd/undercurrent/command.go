@@ -256,6 +256,16 @@ func runCommand(ctx context.Context, args []string, stdout, stderr io.Writer) in
 	// it touches anything (outlock.go).
 	if c.outDir {
 		if f := fs.Lookup("output"); f != nil && f.Value.String() != "" {
+			// An output location that cannot be used is a usage error,
+			// said before the lock file is made beside it.
+			if err := checkOutPlace(f.Value.String()); err != nil {
+				fmt.Fprintf(stderr, "undercurrent %s: %v\n", name, err)
+				fmt.Fprintf(stderr, "run \"undercurrent help %s\" for usage\n", name)
+				if asJSON {
+					writeJSONError(stdout, name, "usage", err.Error(), "", nil)
+				}
+				return 2
+			}
 			unlock, err := lockOutDir(f.Value.String())
 			if err != nil {
 				fmt.Fprintf(stderr, "undercurrent %s: %v\n", name, err)

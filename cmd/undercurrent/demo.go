@@ -113,11 +113,7 @@ func runDemo(ctx context.Context, out string, csvOpt report.CSVOptions, stdout, 
 			return err
 		}
 		// Name the log where it will be, not where it was staged.
-		for i := range doc.Inputs {
-			if doc.Inputs[i].Path == logPath {
-				doc.Inputs[i].Path = filepath.Join(out, demoLog)
-			}
-		}
+		renameLog(doc, logPath, filepath.Join(out, demoLog))
 		if err := ctx.Err(); err != nil {
 			return err
 		}
@@ -211,4 +207,28 @@ func shellQuote(s string) string {
 		return s
 	}
 	return "'" + strings.ReplaceAll(s, "'", `'\''`) + "'"
+}
+
+// renameLog names the log from as to wherever the document names it: its
+// inputs, its groups' logs and its base gaps' logs, so that each group's
+// log joins inputs[] (the demo fits a log in a staging directory that is
+// then moved into place).
+func renameLog(doc *report.Document, from, to string) {
+	for i := range doc.Inputs {
+		if doc.Inputs[i].Path == from {
+			doc.Inputs[i].Path = to
+		}
+	}
+	for i := range doc.Groups {
+		if doc.Groups[i].Log == from {
+			doc.Groups[i].Log = to
+		}
+	}
+	if c := doc.BaseStation; c != nil {
+		for j := range c.BaseGaps {
+			if c.BaseGaps[j].Log == from {
+				c.BaseGaps[j].Log = to
+			}
+		}
+	}
 }

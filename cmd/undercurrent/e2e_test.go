@@ -559,6 +559,30 @@ func TestDemo(t *testing.T) {
 	if len(doc.Groups) != 31 {
 		t.Errorf("%d groups, want 31 traverses", len(doc.Groups))
 	}
+	// Each group names its log as inputs[] does, where the log now is,
+	// not the staging directory it was fitted in (found in review: a
+	// .demo.tmp-DIGITS path that no longer exists), and so do the CSV
+	// and the GeoJSON.
+	var inputs struct {
+		Inputs []struct {
+			Path string `json:"path"`
+		} `json:"inputs"`
+	}
+	if err := json.Unmarshal(data, &inputs); err != nil || len(inputs.Inputs) != 1 || inputs.Inputs[0].Path != filepath.Join(dir, demoLog) {
+		t.Errorf("inputs %+v (%v), want the log at %s", inputs.Inputs, err, filepath.Join(dir, demoLog))
+	}
+	for _, g := range doc.Groups {
+		if g.Log != filepath.Join(dir, demoLog) {
+			t.Errorf("%s: log %q, want %q as inputs[] names it", g.Key, g.Log, filepath.Join(dir, demoLog))
+			break
+		}
+	}
+	for _, name := range []string{"results.json", "results.csv", "route.geojson", "findings.csv", "report.html"} {
+		b, _ := os.ReadFile(filepath.Join(dir, name))
+		if bytes.Contains(b, []byte(".demo.tmp-")) {
+			t.Errorf("%s names the staging directory", name)
+		}
+	}
 	// Each automatic count stops at a count it rejects, and says why
 	// (or at the most it may try, which it then chooses: T07's refit
 	// with the magnetised object); only a count whose lines collapsed

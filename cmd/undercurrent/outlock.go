@@ -44,10 +44,37 @@ func lockOutDir(dir string) (release func(), err error) {
 	}
 	release, err = takeLock(path, holderText(os.Getpid(), time.Now()))
 	var be *busyError
-	if errors.As(err, &be) {
+	var pe *os.PathError
+	switch {
+	case errors.As(err, &be):
 		be.dir = dir
+	case errors.As(err, &pe):
+		// Worded as every failed write is, "FILE: cannot write: REASON".
+		err = &pathWriteError{path: path, err: pe.Err}
 	}
 	return release, err
+}
+
+// checkOutPlace checks, before the lock file is made beside it, that the
+// result directory dir can be made or replaced where it is: dir, when it
+// exists, is a directory, and the nearest existing directory above it can
+// be written in (checkDirParents). What it returns is a usage error
+// naming -o. Before, the lock was taken first, and a directory that could
+// not be written in gave "open /proc/.x.lock: no such file or
+// directory" with exit status 1 (found in review). checkOutDir checks
+// the rest (what dir holds) once the run knows its names.
+func checkOutPlace(dir string) error {
+	fi, err := os.Lstat(dir)
+	switch {
+	case err == nil && !fi.IsDir():
+		return usageErrorf("-o %s: exists and is not a directory", dir)
+	case err != nil && !notThere(err):
+		return usageErrorf("-o %s: %v", dir, err)
+	}
+	if err := checkDirParents(dir); err != nil {
+		return usageErrorf("-o %s: %v", dir, err)
+	}
+	return nil
 }
 
 // holderText is what a lock file says of the run holding it.

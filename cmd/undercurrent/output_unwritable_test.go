@@ -1,6 +1,7 @@
 package main
 
 import (
+	"encoding/json"
 	"os"
 	"path/filepath"
 	"strings"
@@ -53,6 +54,26 @@ func TestOutDirUnwritableParent(t *testing.T) {
 	code, stdout, errOut = cli(t, "locate", "--freq", "1e6", "-o", filepath.Join(ro, "res"), log)
 	if code != 2 || !strings.Contains(errOut, "-o "+filepath.Join(ro, "res")+": output directory "+ro+" cannot be written in") {
 		t.Errorf("locate -o directly in %s: exit %d, stdout %q, stderr %q; want exit 2 naming -o", ro, code, stdout, errOut)
+	}
+	// Nor is the lock file beside -o DIR (outlock.go) made before the
+	// check: it was, and a directory that cannot be written in gave exit
+	// status 1, kind "output" and "open /proc/.x.lock: no such file or
+	// directory" (found in review), the lock file's name and a reason
+	// that misleads.
+	if fi, err := os.Stat("/proc/self"); err == nil && fi.IsDir() {
+		code, stdout, errOut := cli(t, "locate", "--json", log, "-o", "/proc/x")
+		var e struct {
+			Error struct {
+				Kind    string `json:"kind"`
+				Message string `json:"message"`
+			} `json:"error"`
+		}
+		jerr := json.Unmarshal([]byte(stdout), &e)
+		want := "-o /proc/x: output directory /proc cannot be written in"
+		if code != 2 || jerr != nil || e.Error.Kind != "usage" || !strings.Contains(e.Error.Message, want) ||
+			strings.Contains(errOut+stdout, ".lock") || strings.Contains(errOut, "no such file") {
+			t.Errorf("locate --json -o /proc/x: exit %d, stdout %q, stderr %q; want exit 2, kind usage and %q", code, stdout, errOut, want)
+		}
 	}
 	demo := filepath.Join(ro, "sub", "demo")
 	code, stdout, errOut = cli(t, "demo", "-o", demo)

@@ -1,6 +1,10 @@
 package live
 
-import "undercurrent/report"
+import (
+	"encoding/json"
+
+	"undercurrent/report"
+)
 
 // Estimate is what the service publishes for one asset and window on
 // uc.est.<asset>, keeps as the latest value in uc_latest and lists in the
@@ -175,9 +179,50 @@ type HarmonicCurrent struct {
 	// phases 120 degrees apart come out in phase, and their phasor sum
 	// is the third-harmonic current that returns through the neutral.
 	// PhaseSigma is its one-sigma error (180 when the harmonic is lost
-	// in the noise).
+	// in the noise: its phase is not determined, and the JSON leaves
+	// phase_deg and phase_sigma_deg out, as the survey files leave out an
+	// undetermined phase; see MarshalJSON).
 	Phase      float64 `json:"phase_deg"`
 	PhaseSigma float64 `json:"phase_sigma_deg"`
+}
+
+// harmonicJSON is HarmonicCurrent's JSON, its phase absent when not
+// determined.
+type harmonicJSON struct {
+	Order        int      `json:"order"`
+	Current      float64  `json:"current_a"`
+	CurrentSigma float64  `json:"current_sigma_a"`
+	Phase        *float64 `json:"phase_deg,omitempty"`
+	PhaseSigma   *float64 `json:"phase_sigma_deg,omitempty"`
+}
+
+// PhaseDetermined reports whether the harmonic's phase is known: its
+// sigma is under 180 degrees (a sigma of 180 says any phase fits).
+func (h HarmonicCurrent) PhaseDetermined() bool { return h.PhaseSigma < 180 }
+
+// MarshalJSON writes h with phase_deg and phase_sigma_deg left out when
+// its phase is not determined (PhaseDetermined), rather than a sigma of
+// 180 that a dashboard would read as a measured one (found in review).
+func (h HarmonicCurrent) MarshalJSON() ([]byte, error) {
+	j := harmonicJSON{Order: h.Order, Current: h.Current, CurrentSigma: h.CurrentSigma}
+	if h.PhaseDetermined() {
+		j.Phase, j.PhaseSigma = &h.Phase, &h.PhaseSigma
+	}
+	return json.Marshal(j)
+}
+
+// UnmarshalJSON reads what MarshalJSON writes: a harmonic without a phase
+// has PhaseSigma 180, its phase not determined.
+func (h *HarmonicCurrent) UnmarshalJSON(b []byte) error {
+	var j harmonicJSON
+	if err := json.Unmarshal(b, &j); err != nil {
+		return err
+	}
+	*h = HarmonicCurrent{Order: j.Order, Current: j.Current, CurrentSigma: j.CurrentSigma, PhaseSigma: 180}
+	if j.Phase != nil && j.PhaseSigma != nil {
+		h.Phase, h.PhaseSigma = *j.Phase, *j.PhaseSigma
+	}
+	return nil
 }
 
 // WindowChange is a change of current within a window (DC, or the RMS
