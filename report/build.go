@@ -337,6 +337,7 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 			fits[i].levelOff = h
 		}
 	}
+	var cutShort map[int]string // cutShortProblems, by fit
 	analyse := func() (*route.Route, error) {
 		d.Groups = nil
 		// A split whose sum alone carries a current found takes the sum
@@ -372,7 +373,7 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 		stations = make([]route.Station, 0, len(fits))
 		pairRoute = followsPair(fits, ac)
 		placeShort := shortFitsUnplaced(fits)
-		cutShort := cutShortProblems(fits)
+		cutShort = cutShortProblems(fits)
 		for i, f := range fits {
 			g, st := buildGroup(&f, ac, ref.of(&f), bs.ProfileMax, pairRoute, bs.SensorHeight)
 			if placeShort {
@@ -502,6 +503,7 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 	d.addTrackPhases()
 	d.addCrossings()
 	d.addLoneCover(fits, r, rs, tracks)
+	d.addCutShortCover(fits, r, rs, cutShort)
 	d.addPairCover(rs)
 	d.addCurrentRamps(fits)
 	return &d, nil

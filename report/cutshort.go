@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"math"
 	"slices"
+
+	"undercurrent/inverse/route"
 )
 
 // A log cut short in the middle of a traverse (the logger stopped, a file
@@ -27,9 +29,13 @@ import (
 // seen the line's field turn. A traverse walked short on purpose that
 // still crosses every line by a depth either side is not named, nor is a
 // traverse of the usual length whose line crosses beyond its end (an
-// oblique crossing). The map is keyed by the fits' indices. Build leaves
-// a fit so named out of the route's line, steps and cover, as one too
-// short to place the conductor (unplace), and so out of the sound count.
+// oblique crossing). Only the first fit of a log (starting short) and
+// its last (ending short) are named, in the fits' order (that of the log
+// or of time), keyed by Fit.Log: a short traverse mid-log was walked
+// short (a wall, a fence), not cut. The map is keyed by the fits'
+// indices. Build leaves a fit so named out of the route's line and steps,
+// as one too short to place the conductor (unplace), and so out of the
+// sound count, but still checks its cover (addCutShortCover).
 func cutShortProblems(fits []Fit) map[int]string {
 	type track struct {
 		ok        bool
@@ -68,9 +74,27 @@ func cutShortProblems(fits []Fit) map[int]string {
 	if !(median > 0) {
 		return nil
 	}
+	// A log is cut short at its end, or started late at its start: only
+	// the first and last fits of each log (in the fits' order, that of
+	// the log or of time) can be so. A short traverse in the middle of a
+	// log was walked short (a wall, a fence beside the route), and its
+	// fit stands as it is: in review the rule named good fits beside a
+	// wall (30.00 +- 0.01 A, 1.500 m, truth 30 A at 1.5 m) and hid a
+	// 0.52 m cover under one of them.
+	firstOf, lastOf := map[string]int{}, map[string]int{}
+	for i := range fits {
+		if _, ok := firstOf[fits[i].Log]; !ok {
+			firstOf[fits[i].Log] = i
+		}
+		lastOf[fits[i].Log] = i
+	}
 	out := map[int]string{}
 	for i, t := range tr {
 		if !t.ok || t.cover >= cutShortShare*median || fits[i].Dipole {
+			continue
+		}
+		atStart, atEnd := firstOf[fits[i].Log] == i, lastOf[fits[i].Log] == i
+		if !atStart && !atEnd {
 			continue
 		}
 		// The plane of the traverse, square to u in plan.
@@ -101,6 +125,11 @@ func cutShortProblems(fits []Fit) map[int]string {
 			where := "ends"
 			if (t.lo-(v-d) > v+d-t.hi) != (last < first) {
 				where = "starts"
+			}
+			// The log's last traverse may end short, its first start
+			// short; not the other way round.
+			if where == "ends" && !atEnd || where == "starts" && !atStart {
+				continue
 			}
 			name := fits[i].Key
 			if name == "" {
@@ -150,4 +179,32 @@ func planAxis(pts [][3]float64) (c, a [2]float64, ok bool) {
 	}
 	th := 0.5 * math.Atan2(2*sxy, sxx-syy)
 	return c, [2]float64{math.Cos(th), math.Sin(th)}, true
+}
+
+// addCutShortCover checks the cover of the stations that Build left out
+// of the route's line because their traverse may be cut short
+// (cutShortProblems; route.NamedCover): the rule may name a good fit, and
+// a shallow cover under it is warned, with that caveat, not hidden.
+func (d *Document) addCutShortCover(fits []Fit, r *route.Route, rs *route.Settings, cutShort map[int]string) {
+	if r == nil || len(cutShort) == 0 {
+		return
+	}
+	named := map[string]bool{}
+	for i := range cutShort {
+		named[fits[i].Key] = true
+	}
+	added := false
+	for k := range r.Stations {
+		p := &r.Stations[k]
+		if !named[p.Key] {
+			continue
+		}
+		if f, ok := route.NamedCover(p, rs, "its traverse is short and the log may be cut short: see its problem", len(r.Stations) == 1); ok {
+			d.Findings = append(d.Findings, findingOf(f))
+			added = true
+		}
+	}
+	if added {
+		SortFindings(d.Findings)
+	}
 }
