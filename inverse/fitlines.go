@@ -2318,25 +2318,35 @@ func (f *fitter) reweight(c *candidate) error {
 			change = math.Max(change, math.Abs(nw-w[row]))
 			w[row] = nw
 		}
-		if sp.w == nil {
-			sp.w = make([]float64, m)
-		}
-		for row := range m {
-			sp.w[row] = math.Sqrt(w[row])
-		}
-		sp.ok = false
-		c.memo = nil // the weights changed: a summary made before no longer holds
-		lmp, _ := sp.problem()
-		r, err := levmar(lmp, c.x, f.set.lm())
-		if err != nil {
+		if err := f.refitWeighted(c, w); err != nil {
 			return err
 		}
-		c.x, c.res, c.rss = r.x, r, r.rss
-		c.iters += r.iter
 		if change < 1e-4 {
 			break
 		}
 	}
+	return nil
+}
+
+// refitWeighted sets the candidate's row weights to sqrt(w) and refits it
+// from where it stands (the Huber reweighting and the position weights).
+func (f *fitter) refitWeighted(c *candidate, w []float64) error {
+	sp := c.sp
+	if sp.w == nil {
+		sp.w = make([]float64, len(w))
+	}
+	for row := range w {
+		sp.w[row] = math.Sqrt(w[row])
+	}
+	sp.ok = false
+	c.memo = nil // the weights changed: a summary made before no longer holds
+	lmp, _ := sp.problem()
+	r, err := levmar(lmp, c.x, f.set.lm())
+	if err != nil {
+		return err
+	}
+	c.x, c.res, c.rss = r.x, r, r.rss
+	c.iters += r.iter
 	return nil
 }
 

@@ -369,21 +369,9 @@ func (f *fitter) positionWeights(c *candidate) (string, error) {
 		if rounds > 1 && change < 1e-3 && moved < 1e-3*math.Sqrt(s2) {
 			break
 		}
-		if sp.w == nil {
-			sp.w = make([]float64, m)
-		}
-		for row := range m {
-			sp.w[row] = math.Sqrt(w[row])
-		}
-		sp.ok = false
-		c.memo = nil // the weights changed: a summary made before no longer holds
-		lmp, _ := sp.problem()
-		r, err := levmar(lmp, c.x, f.set.lm())
-		if err != nil {
+		if err := f.refitWeighted(c, w); err != nil {
 			return "", err
 		}
-		c.x, c.res, c.rss = r.x, r, r.rss
-		c.iters += r.iter
 	}
 	// The terms at the fit, for the covariance (positionSandwich).
 	pp, err := sp.positionParts(c.x, plan, up)
