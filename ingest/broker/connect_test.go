@@ -1,21 +1,14 @@
 package broker
 
 import (
-	"crypto/ecdsa"
-	"crypto/elliptic"
-	"crypto/rand"
-	"crypto/x509"
-	"crypto/x509/pkix"
-	"encoding/pem"
-	"math/big"
 	"net"
-	"os"
-	"path/filepath"
 	"strings"
 	"testing"
 	"time"
 
 	"github.com/nats-io/nats-server/v2/server"
+
+	"undercurrent/ingest/ingesttest"
 )
 
 // A failed connect names the URL and what to check: an http:// URL (the
@@ -68,30 +61,12 @@ func TestConnectErrorsNameTheCause(t *testing.T) {
 
 // Connect reaches a broker that requires TLS with a client certificate,
 // given the CA file and the client's certificate and key (a private
-// authority generated here with crypto/x509: simulated truth), and says
+// authority generated with crypto/x509 by ingesttest.WritePKI: simulated truth), and says
 // what to set when the CA is not given.
 func TestConnectTLSWithPrivateCA(t *testing.T) {
-	dir := t.TempDir()
-	caKey, caCert, caDER := newCert(t, "Kestrel Moor test CA", nil, nil, true)
-	write := func(name, typ string, der []byte) string {
-		p := filepath.Join(dir, name)
-		if err := os.WriteFile(p, pem.EncodeToMemory(&pem.Block{Type: typ, Bytes: der}), 0o600); err != nil {
-			t.Fatal(err)
-		}
-		return p
-	}
-	keyDER := func(k *ecdsa.PrivateKey) []byte {
-		b, err := x509.MarshalECPrivateKey(k)
-		if err != nil {
-			t.Fatal(err)
-		}
-		return b
-	}
-	caFile := write("ca.pem", "CERTIFICATE", caDER)
-	sKey, _, sDER := newCert(t, "127.0.0.1", caCert, caKey, false)
-	cKey, _, cDER := newCert(t, "kestrel-moor-worker", caCert, caKey, false)
-	srvCert, srvKey := write("server.pem", "CERTIFICATE", sDER), write("server-key.pem", "EC PRIVATE KEY", keyDER(sKey))
-	cliCert, cliKey := write("client.pem", "CERTIFICATE", cDER), write("client-key.pem", "EC PRIVATE KEY", keyDER(cKey))
+	pki := ingesttest.WritePKI(t, t.TempDir(), "Kestrel Moor test CA")
+	caFile, srvCert, srvKey := pki.CA, pki.ServerCert, pki.ServerKey
+	cliCert, cliKey := pki.ClientCert, pki.ClientKey
 
 	tc, err := server.GenTLSConfig(&server.TLSConfigOpts{CertFile: srvCert, KeyFile: srvKey, CaFile: caFile, Verify: true})
 	if err != nil {
@@ -125,41 +100,4 @@ func TestConnectTLSWithPrivateCA(t *testing.T) {
 	if _, err := Connect(url, "test", Auth{CAFile: caFile, CertFile: cliCert}); err == nil || !strings.Contains(err.Error(), "key file") {
 		t.Errorf("a certificate without its key: %v; want both asked for", err)
 	}
-}
-
-// newCert makes an ECDSA P-256 certificate for name (an IP address is
-// put in the IP SANs), signed by parent (self-signed when nil).
-func newCert(t *testing.T, name string, parent *x509.Certificate, parentKey *ecdsa.PrivateKey, ca bool) (*ecdsa.PrivateKey, *x509.Certificate, []byte) {
-	t.Helper()
-	key, err := ecdsa.GenerateKey(elliptic.P256(), rand.Reader)
-	if err != nil {
-		t.Fatal(err)
-	}
-	tmpl := &x509.Certificate{
-		SerialNumber: big.NewInt(time.Now().UnixNano()),
-		Subject:      pkix.Name{CommonName: name},
-		NotBefore:    time.Now().Add(-time.Hour),
-		NotAfter:     time.Now().Add(24 * time.Hour),
-		KeyUsage:     x509.KeyUsageDigitalSignature,
-		ExtKeyUsage:  []x509.ExtKeyUsage{x509.ExtKeyUsageServerAuth, x509.ExtKeyUsageClientAuth},
-	}
-	if ip := net.ParseIP(name); ip != nil {
-		tmpl.IPAddresses = []net.IP{ip}
-	}
-	if ca {
-		tmpl.IsCA, tmpl.BasicConstraintsValid = true, true
-		tmpl.KeyUsage |= x509.KeyUsageCertSign
-	}
-	if parent == nil {
-		parent, parentKey = tmpl, key
-	}
-	der, err := x509.CreateCertificate(rand.Reader, tmpl, parent, &key.PublicKey, parentKey)
-	if err != nil {
-		t.Fatal(err)
-	}
-	c, err := x509.ParseCertificate(der)
-	if err != nil {
-		t.Fatal(err)
-	}
-	return key, c, der
 }
