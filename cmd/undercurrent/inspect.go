@@ -17,6 +17,7 @@ import (
 	"github.com/spf13/pflag"
 
 	"undercurrent/ingest"
+	"undercurrent/report"
 )
 
 func init() {
@@ -130,10 +131,21 @@ type inspectedColumn struct {
 	ValuesUnit string `json:"values_unit,omitempty"`
 }
 
-// inspectedLog is inspect's JSON: ingest.Inspection with the columns'
+// inspectSchemaVersion is the version of inspect's JSON
+// ("schema_version"). Version 1 is the first to carry it, with the tool
+// block and the durations named with their unit (duration_s,
+// interval_s, rate_hz, length_s) beside the older names, which it still
+// writes (deprecated: they go in version 2). It grows when a field is
+// renamed, removed or changes meaning, not for a field added.
+const inspectSchemaVersion = 1
+
+// inspectedLog is inspect's JSON: ingest.Inspection with its version
+// and the tool that wrote it (as results.json gives them), the columns'
 // value units, the origin named as results.json names it, and each gap's
 // data row counted from 1 beside ingest's 0-based row.
 type inspectedLog struct {
+	SchemaVersion int         `json:"schema_version"`
+	Tool          report.Tool `json:"tool"`
 	*ingest.Inspection
 	Origin  *inspectedOrigin  `json:"origin,omitempty"`
 	Columns []inspectedColumn `json:"columns"`
@@ -148,22 +160,31 @@ type inspectedOrigin struct {
 	H   float64 `json:"height_m"`
 }
 
-// inspectedTime is ingest.TimeStats with inspectedGap gaps.
+// inspectedTime is ingest.TimeStats with inspectedGap gaps, and its
+// duration, interval and rate under names that carry their unit as the
+// result document's do (duration, interval and rate, without one, are
+// deprecated).
 type inspectedTime struct {
 	ingest.TimeStats
-	Largest []inspectedGap `json:"largest_gaps"`
+	DurationS float64        `json:"duration_s"`
+	IntervalS float64        `json:"interval_s"`
+	RateHz    float64        `json:"rate_hz"`
+	Largest   []inspectedGap `json:"largest_gaps"`
 }
 
 // inspectedGap is a gap with DataRow, the data row it follows counted
 // from 1 (the first reading is data row 1), as the text output says it;
-// ingest's row counts from 0.
+// ingest's row counts from 0. LengthS is its length, s (length, without
+// the unit, is deprecated).
 type inspectedGap struct {
 	ingest.Gap
-	DataRow int `json:"after_data_row"`
+	LengthS float64 `json:"length_s"`
+	DataRow int     `json:"after_data_row"`
 }
 
 func inspectionJSON(in *ingest.Inspection) inspectedLog {
-	out := inspectedLog{Inspection: in, Columns: []inspectedColumn{}}
+	out := inspectedLog{SchemaVersion: inspectSchemaVersion, Tool: report.Tool{Name: "undercurrent", Version: toolVersion(), Build: buildText()},
+		Inspection: in, Columns: []inspectedColumn{}}
 	if o := in.Origin; o != nil {
 		out.Origin = &inspectedOrigin{Lat: o.Lat, Lon: o.Lon, H: o.H}
 	}
@@ -174,9 +195,9 @@ func inspectionJSON(in *ingest.Inspection) inspectedLog {
 		}
 		out.Columns = append(out.Columns, inspectedColumn{ColumnStats: c, ValuesUnit: vu})
 	}
-	out.Time = inspectedTime{TimeStats: in.Time, Largest: []inspectedGap{}}
+	out.Time = inspectedTime{TimeStats: in.Time, DurationS: in.Time.Duration, IntervalS: in.Time.Interval, RateHz: in.Time.Rate, Largest: []inspectedGap{}}
 	for _, g := range in.Time.Largest {
-		out.Time.Largest = append(out.Time.Largest, inspectedGap{Gap: g, DataRow: g.Row + 1})
+		out.Time.Largest = append(out.Time.Largest, inspectedGap{Gap: g, LengthS: g.Length, DataRow: g.Row + 1})
 	}
 	return out
 }

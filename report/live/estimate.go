@@ -116,7 +116,7 @@ type Estimate struct {
 	// Revision is the asset's read revision when the window was solved:
 	// 0 until the asset is first restarted, n after the n-th restart (see
 	// HeaderRevision). A window read again supersedes its lower revisions.
-	Revision int `json:"revision,omitempty"`
+	Revision int `json:"revision"` // written when 0 too (see MarshalJSON)
 }
 
 // NetCurrentCaution is the caution an AC estimate and an AC asset carry
@@ -272,7 +272,7 @@ type Alarm struct {
 	// Revision is the read revision of the estimate that raised the alarm.
 	// Once a higher revision has processed the window, the alarm listing
 	// shows that revision's alarms of the window instead (see Alarms).
-	Revision int `json:"revision,omitempty"`
+	Revision int `json:"revision"` // written when 0 too (see MarshalJSON)
 	// Cleared marks the record that a condition alarmed at its onset
 	// (see latchedKinds) no longer holds: its window is the first without
 	// it (for a degraded fit the third in a row under its deadband, for an

@@ -56,7 +56,7 @@ import (
 // positioned in the stored streams by the broker and read only about as
 // many messages as they return (see History). A window read again after
 // a restart is listed once, at its highest read revision ("revision" in
-// the JSON, 0 and omitted before the first restart), and the alarms
+// the JSON, 0 before the first restart, written when 0 too), and the alarms
 // listed for it are those that revision raised, none when it raised
 // none (until the re-read reaches the window, its older alarms stay);
 // revisions=all lists every revision, sorted by start and then revision
@@ -68,7 +68,8 @@ import (
 // loopback; otherwise, and for every state-changing endpoint, the request
 // needs "Authorization: Bearer TOKEN" with the site's service token.
 // Every error, including an unknown path (404) and a method the path
-// does not take (405, with an Allow header), is JSON {"error": ...}.
+// does not take (405, with an Allow header), is JSON {"error": MESSAGE,
+// "kind": KIND} (see httpError).
 func (s *Service) Handler() http.Handler {
 	mux := http.NewServeMux()
 	mux.HandleFunc("GET /healthz", func(w http.ResponseWriter, r *http.Request) { fmt.Fprintln(w, "ok") })
@@ -207,16 +208,52 @@ func (s *Service) brokerError(w http.ResponseWriter, r *http.Request, err error)
 	httpError(w, http.StatusBadGateway, err.Error())
 }
 
+// httpError writes the API's error object: {"error": MESSAGE, "kind":
+// KIND}. "error" stays the message string it has always been, and every
+// member is a string, so that current clients keep working, those that
+// decode the body into a map of strings too (a number beside it would
+// break them: the HTTP status is in the response's status line); kind
+// sorts the failure as the command line's --json error object does (its
+// "kind"; see errorKindOf).
 func httpError(w http.ResponseWriter, code int, msg string) {
 	w.Header().Set("Content-Type", "application/json")
 	w.WriteHeader(code)
-	json.NewEncoder(w).Encode(map[string]string{"error": msg})
+	json.NewEncoder(w).Encode(apiError{Error: msg, Kind: errorKindOf(code)})
 }
 
-// Headers of a listing cut at its limit (see markMore).
+// apiError is the body of an API error (httpError).
+type apiError struct {
+	Error string `json:"error"`
+	Kind  string `json:"kind"`
+}
+
+// errorKindOf sorts an error status: "usage" for a request the API does
+// not take as it is (400, 404, 405, 409, 413: a parameter, an unknown
+// asset or path, a method, a conflicting request, a body too large),
+// "auth" for a missing or wrong token (401, 403), "unavailable" for a
+// service that cannot answer now (503: the broker unreachable, Retry-After
+// set) and "upstream" for a request the broker failed (502); "internal"
+// otherwise.
+func errorKindOf(code int) string {
+	switch code {
+	case http.StatusBadRequest, http.StatusNotFound, http.StatusMethodNotAllowed, http.StatusConflict, http.StatusRequestEntityTooLarge:
+		return "usage"
+	case http.StatusUnauthorized, http.StatusForbidden:
+		return "auth"
+	case http.StatusServiceUnavailable:
+		return "unavailable"
+	case http.StatusBadGateway:
+		return "upstream"
+	}
+	return "internal"
+}
+
+// Headers of a listing cut at its limit (see markMore), and the version
+// of the history CSV (see writeEstimatesCSV).
 const (
-	HeaderMore     = "X-Uc-More"
-	HeaderNextFrom = "X-Uc-Next-From"
+	HeaderSchemaVersion = "X-Uc-Schema-Version"
+	HeaderMore          = "X-Uc-More"
+	HeaderNextFrom      = "X-Uc-Next-From"
 )
 
 // markMore marks a listing that its limit cut short: more results follow
@@ -237,16 +274,29 @@ func writeJSON(w http.ResponseWriter, v any) {
 
 // AssetInfo is one entry of GET /api/v1/assets.
 type AssetInfo struct {
-	Name        string   `json:"name"`
-	Description string   `json:"description,omitempty"`
-	Mode        string   `json:"mode"`
-	Frequency   float64  `json:"frequency,omitempty"`
-	Window      string   `json:"window"`
-	Model       string   `json:"model"`
-	Sensors     []string `json:"sensors"`
-	Conductors  []string `json:"conductors"`
-	Worker      string   `json:"worker,omitempty"` // lease holder
-	Start       string   `json:"start"`            // configured start
+	Name        string `json:"name"`
+	Description string `json:"description,omitempty"`
+	Mode        string `json:"mode"`
+	// Frequency is deprecated for FrequencyHz, the same value (to go
+	// with APISchemaVersion 2).
+	Frequency   float64 `json:"frequency,omitempty"`
+	FrequencyHz float64 `json:"frequency_hz,omitempty"`
+	// Window is the window's length as the site file writes it ("1s");
+	// WindowS the same in seconds, a number. Window is deprecated (to go
+	// with APISchemaVersion 2): in an estimate and an alarm "window" is
+	// the window's index.
+	Window     string   `json:"window"`
+	WindowS    float64  `json:"window_s"`
+	Model      string   `json:"model"`
+	Sensors    []string `json:"sensors"`
+	Conductors []string `json:"conductors"`
+	Worker     string   `json:"worker,omitempty"` // lease holder
+	// Start is the configured start point ("retained", "new", a duration
+	// back or an RFC 3339 time), StartPolicy the same. Start is
+	// deprecated (to go with APISchemaVersion 2): in an estimate and an
+	// alarm "start" is the window's start, Unix seconds.
+	Start       string `json:"start"`
+	StartPolicy string `json:"start_policy"`
 	// Restart is the last restart request (Applied nil while pending).
 	Restart *RestartStatus `json:"restart,omitempty"`
 	// Stopped, when this worker holds the asset, says why its processing
@@ -285,7 +335,8 @@ type AssetInfo struct {
 
 func (s *Service) assetInfo(ctx context.Context, a *AssetConfig) (AssetInfo, error) {
 	ai := AssetInfo{Name: a.Name, Description: a.Description, Mode: a.Mode, Frequency: a.Frequency,
-		Window: a.Window.String(), Model: a.Model, Sensors: []string{}, Conductors: []string{}, Start: a.Start.String()}
+		FrequencyHz: a.Frequency, Window: a.Window.String(), WindowS: a.Window.Seconds(), Model: a.Model,
+		Sensors: []string{}, Conductors: []string{}, Start: a.Start.String(), StartPolicy: a.Start.String()}
 	if a.Mode == "ac" {
 		ai.Caution = NetCurrentCaution
 	}
@@ -510,16 +561,20 @@ func (s *Service) history(w http.ResponseWriter, r *http.Request) {
 // a change within the window, the sensors left out or short, the spikes,
 // the implausible reasons and the AC frequency, then an AC conductor's
 // total RMS current and harmonics, then the row's conductor's
-// covariances with the others) come after the earlier
-// ones so that those keep their places.
+// covariances with the others, then the window's start and end as RFC
+// 3339 UTC) come after the earlier ones so that those keep their places.
+// The CSV's version, APISchemaVersion as the JSON's, is in the
+// X-Uc-Schema-Version header (a CSV has no place for it that a reader
+// by position would not trip on).
 func writeEstimatesCSV(w http.ResponseWriter, ests []Estimate) {
 	w.Header().Set("Content-Type", "text/csv")
+	w.Header().Set(HeaderSchemaVersion, strconv.Itoa(APISchemaVersion))
 	cw := csv.NewWriter(w)
 	cw.Write([]string{"asset", "window", "start", "end", "conductor", "current_a", "current_sigma_a", "phase_deg", "phase_sigma_deg", "rms_nt", "chi2", "dof", "quality", "sensors", "revision",
 		"current_sigma_geometry_a", "phase_sigma_geometry_deg", "sigma_scale", "data_lost",
 		"change_at", "change_sigmas", "current_before_a", "current_before_sigma_a", "current_after_a", "current_after_sigma_a", "phase_before_deg", "phase_after_deg",
 		"missing", "spikes", "implausible", "frequency_hz", "frequency_sigma_hz",
-		"current_total_a", "current_total_sigma_a", "harmonics", "current_covariance_a2"})
+		"current_total_a", "current_total_sigma_a", "harmonics", "current_covariance_a2", "start_utc", "end_utc"})
 	f := func(v float64) string { return strconv.FormatFloat(v, 'g', 10, 64) }
 	// Times (seconds on the sensors' clock, Unix seconds for most) in
 	// full: ten significant digits would cut a change inside a window to
@@ -605,12 +660,12 @@ func writeEstimatesCSV(w http.ResponseWriter, ests []Estimate) {
 					cv = append(cv, o.Name+": "+f(e.CurrentCovariance[ci][k]))
 				}
 			}
-			row = append(row, tot, tots, strings.Join(hs, "; "), strings.Join(cv, "; "))
+			row = append(row, tot, tots, strings.Join(hs, "; "), strings.Join(cv, "; "), utcTime(e.Start), utcTime(e.End))
 			cw.Write(row)
 		}
 		if len(e.Conductors) == 0 {
 			row := []string{e.Asset, strconv.FormatInt(e.Window, 10), ft(e.Start), ft(e.End), "", "", "", "", "", f(e.RMS), f(e.Chi2), strconv.Itoa(e.DOF), e.Quality, strconv.Itoa(e.Sensors), strconv.Itoa(e.Revision), "", "", scale, e.DataLost}
-			row = append(append(append(row, change("")...), tail...), "", "", "", "")
+			row = append(append(append(row, change("")...), tail...), "", "", "", "", utcTime(e.Start), utcTime(e.End))
 			cw.Write(row)
 		}
 	}

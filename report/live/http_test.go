@@ -25,7 +25,8 @@ func apiRequest(t *testing.T, r *running, method, path string) (*http.Response, 
 	return resp, string(b)
 }
 
-// Bad requests are refused with a JSON {"error": ...} that says what is
+// Bad requests are refused with a JSON {"error": ..., "kind": "usage"}
+// whose message says what is
 // wrong: an unknown alarm kind (naming the known ones), a format the
 // alarms do not have, a parameter given empty, an unknown path (404) and
 // a method the path does not take (405 with an Allow header, which RFC
@@ -70,14 +71,22 @@ func TestAPIRefusals(t *testing.T) {
 		if ct := resp.Header.Get("Content-Type"); ct != "application/json" {
 			t.Errorf("%s %s: Content-Type %q, want application/json", c.method, c.path, ct)
 		}
+		// The body is {"error": MESSAGE, "kind": KIND}: "error" the
+		// string it always was, kind beside it (as the command line's
+		// --json error sorts a failure), every member a string so that a
+		// client decoding into a map of strings keeps working.
 		var e map[string]string
-		if err := json.Unmarshal([]byte(body), &e); err != nil || len(e) != 1 || e["error"] == "" {
-			t.Errorf("%s %s: body %q is not {\"error\": ...} (%v)", c.method, c.path, body, err)
+		if err := json.Unmarshal([]byte(body), &e); err != nil || len(e) != 2 {
+			t.Errorf("%s %s: body %q is not {\"error\", \"kind\"} (%v)", c.method, c.path, body, err)
 			continue
 		}
+		msg := e["error"]
+		if msg == "" || e["kind"] != "usage" {
+			t.Errorf("%s %s: body %q, want a message and kind \"usage\"", c.method, c.path, body)
+		}
 		for _, s := range c.says {
-			if !strings.Contains(e["error"], s) {
-				t.Errorf("%s %s: error %q does not say %q", c.method, c.path, e["error"], s)
+			if !strings.Contains(msg, s) {
+				t.Errorf("%s %s: error %q does not say %q", c.method, c.path, msg, s)
 			}
 		}
 		if c.code == 405 {
