@@ -194,6 +194,10 @@ type BuildSettings struct {
 	// agrees (refitLinesAbove); the line is reported in
 	// Document.LinesAbove, never as a buried conductor. DC only.
 	LineAbove bool
+	// LineAboveWhy adds a warning saying why a line above that was tried
+	// was not taken (the survey's groups disagreed, a turned sensor fitted
+	// as well).
+	LineAboveWhy bool
 	// Progress, when not nil, is told how far the search for magnetised
 	// objects has got, the longest part of Build on a survey with many
 	// groups (progress.go); its calls come one at a time.
@@ -340,7 +344,7 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 		if la != nil {
 			d.LinesAbove = []LineAbove{*la}
 			d.Warnings = append(d.Warnings, la.words())
-		} else if why != "" {
+		} else if why != "" && bs.LineAboveWhy {
 			d.Warnings = append(d.Warnings, why)
 		}
 	}

@@ -45,9 +45,9 @@ type aboveGroup struct {
 	below      *inverse.Result
 	q          *inverse.Problem // the readings less the line above
 	rms, noise float64
-	bg         [3]float64 // the refit's background, nT
-	depth      float64    // the strongest buried line's depth below the sensors' mean height
-	before     inverse.SourceEstimate
+	bg         [3]float64               // the refit's background, nT
+	depth      float64                  // the strongest buried line's depth below the sensors' mean height
+	before     []inverse.SourceEstimate // the fit's lines before
 }
 
 // refitLinesAbove fits one line above the sensors beside the buried lines
@@ -101,6 +101,7 @@ func refitLinesAbove(fits []Fit, bs *BuildSettings) (*LineAbove, string) {
 		return nil, ""
 	}
 	var gs []aboveGroup
+	var missed []int
 	for _, i := range far {
 		// The axes first: a sensor turned half round about its vertical
 		// over lines below reads as a line above.
@@ -111,7 +112,26 @@ func refitLinesAbove(fits []Fit, bs *BuildSettings) (*LineAbove, string) {
 		if r := flipFit(&fits[i]); r <= aboveMisfit*noise {
 			return nil, fmt.Sprintf("a line above the sensors (--line-above) was not taken: at %s a sensor turned half round about its vertical (x and y reversed) over lines below fits the readings (%.3g nT RMS, %.3g times the noise); check the sensor's orientation and the field columns first", fits[i].Key, r, r/noise)
 		}
-		g := refitAbove(&fits[i], noise, bs)
+		g := refitAbove(&fits[i], noise, bs, nil)
+		if g == nil {
+			missed = append(missed, i)
+			continue
+		}
+		g.i = i
+		if why := turnedWhy(g); why != "" {
+			return nil, fmt.Sprintf("a line above the sensors (--line-above) was not taken: at %s %s; check the sensor's orientation and the field columns first", fits[i].Key, why)
+		}
+		gs = append(gs, *g)
+	}
+	// A group whose own seeds missed is started again from the other
+	// groups' line above: one line over the survey.
+	for _, i := range missed {
+		var g *aboveGroup
+		for _, o := range gs {
+			if g = refitAbove(&fits[i], fits[i].MeasuredNoise, bs, &inverse.Line{Point: o.up.Point, Dir: o.up.Dir}); g != nil {
+				break
+			}
+		}
 		if g == nil {
 			return nil, fmt.Sprintf("a line above the sensors (--line-above) was not taken: group %s's fit with one did not meet its noise", fits[i].Key)
 		}
@@ -148,7 +168,7 @@ func refitLinesAbove(fits []Fit, bs *BuildSettings) (*LineAbove, string) {
 		if flipFit(f) <= aboveMisfit*noise {
 			continue
 		}
-		g := refitAbove(f, noise, bs)
+		g := refitAbove(f, noise, bs, &inverse.Line{Point: gs[0].up.Point, Dir: gs[0].up.Dir})
 		if g == nil || turnedWhy(g) != "" {
 			continue
 		}
@@ -171,9 +191,9 @@ func refitLinesAbove(fits []Fit, bs *BuildSettings) (*LineAbove, string) {
 }
 
 // refitAbove refits f with its lines below plus one line above the
-// sensors; nil when no such fit meets aboveMisfit times the noise or the
+// sensors, started from seed (when not nil) too; nil when no such fit meets aboveMisfit times the noise or the
 // group's fit holds anything but lines.
-func refitAbove(f *Fit, noise float64, bs *BuildSettings) *aboveGroup {
+func refitAbove(f *Fit, noise float64, bs *BuildSettings, seed *inverse.Line) *aboveGroup {
 	if !(noise > 0) {
 		noise = bs.MeasuredNoise
 	}
@@ -186,13 +206,10 @@ func refitAbove(f *Fit, noise float64, bs *BuildSettings) *aboveGroup {
 		return nil
 	}
 	count := 0
-	var before inverse.SourceEstimate
-	for i, s := range f.Result.Sources {
+	before := f.Result.Sources
+	for _, s := range before {
 		if s.Kind != "line" {
 			return nil
-		}
-		if i == 0 {
-			before = s
 		}
 		count++
 	}
@@ -210,8 +227,11 @@ func refitAbove(f *Fit, noise float64, bs *BuildSettings) *aboveGroup {
 	// Seeds: the mirror refit of the residuals (a line above is its
 	// mirror image in the sensors' height with Bx, By negated), and lines
 	// 3, 8 and 20 m over the readings along it.
-	az := before.Dir
+	az := before[0].Dir
 	var seeds []inverse.Line
+	if seed != nil {
+		seeds = append(seeds, *seed)
+	}
 	rp := &inverse.Problem{Points: p.Points, Fields: f.Result.Residuals, Sigma: p.Sigma, Scale: p.Scale, Times: p.Times, Travel: p.Travel}
 	ms := set
 	ms.Count, ms.ReferenceZ = 1, nil
@@ -243,8 +263,14 @@ func refitAbove(f *Fit, noise float64, bs *BuildSettings) *aboveGroup {
 	}
 	g := &aboveGroup{rms: best.RMS, noise: noise, before: before}
 	found := false
+	// The line above is the best-determined line over the sensors: a
+	// line below that dips steeply may pass above them near the readings'
+	// centre (inverse.AboveSensorsNote).
 	for _, s := range best.Sources {
-		if s.Kind == "line" && s.Point[2] > top {
+		if s.Kind != "line" || !(s.Point[2] > top) || slices.Contains(s.Notes, inverse.AboveSensorsNote) {
+			continue
+		}
+		if !found || math.Abs(s.Current)/s.CurrentSigma > math.Abs(g.up.Current)/g.up.CurrentSigma {
 			g.up, found = s, true
 		}
 	}
@@ -389,18 +415,8 @@ func agreeAbove(gs []aboveGroup, fits []Fit) (*LineAbove, string) {
 		if math.Abs(az[k]-ma) > 3*math.Hypot(azs[k], mas)+5 {
 			return nil, fmt.Sprintf("the groups' lines above do not agree on a direction (%s: %.3g degrees, the survey's %.3g)", key, az[k], ma)
 		}
-		b, a := g.before, g.below.Sources[0]
-		da := math.Abs(b.Azimuth - a.Azimuth)
-		da = math.Min(da, 180-da)
-		if da > 3*math.Hypot(b.AzimuthSigma, a.AzimuthSigma)+5 {
-			return nil, fmt.Sprintf("at %s the buried line turns by %.3g degrees when the line above is fitted beside it", key, da)
-		}
-		// Plan offset of the buried line after from the line before.
-		u := [2]float64{math.Sin(b.Azimuth / deg), math.Cos(b.Azimuth / deg)}
-		dx, dy := a.Point[0]-b.Point[0], a.Point[1]-b.Point[1]
-		off := math.Abs(dx*u[1] - dy*u[0])
-		if off > 3*math.Hypot(b.OffsetSigma, a.OffsetSigma)+0.25 {
-			return nil, fmt.Sprintf("at %s the buried line moves %.2g m in plan when the line above is fitted beside it", key, off)
+		if why := keptPlan(g.before, g.below.Sources[0]); why != "" {
+			return nil, fmt.Sprintf("at %s the buried line %s when the line above is fitted beside it", key, why)
 		}
 	}
 	// One line in plan: each group's line above passes within 3 sigma
@@ -475,4 +491,33 @@ func (d *Document) lineAboveFeature(la *LineAbove) feature {
 		"message":                      "a conductor above the sensors (an overhead line, a cable tray), not a buried conductor: no cover",
 	}
 	return feature{Type: "Feature", Geometry: d.line([][3]float64{along(p, u, lo-5), along(p, u, hi+5)}), Properties: props}
+}
+
+// keptPlan says how the buried line a moved in plan from every line of
+// before (its fit without the line above), "" when one of them has its
+// azimuth and plan position within 3 sigma (and 5 degrees, 0.25 m): only
+// its current and depth may change.
+func keptPlan(before []inverse.SourceEstimate, a inverse.SourceEstimate) string {
+	why := ""
+	for _, b := range before {
+		da := math.Abs(b.Azimuth - a.Azimuth)
+		da = math.Min(da, 180-da)
+		if da > 3*math.Hypot(b.AzimuthSigma, a.AzimuthSigma)+5 {
+			if why == "" {
+				why = fmt.Sprintf("turns by %.3g degrees", da)
+			}
+			continue
+		}
+		r := b.Azimuth * math.Pi / 180
+		dx, dy := a.Point[0]-b.Point[0], a.Point[1]-b.Point[1]
+		off := math.Abs(dx*math.Cos(r) - dy*math.Sin(r))
+		if off > 3*math.Hypot(b.OffsetSigma, a.OffsetSigma)+0.25 {
+			if why == "" {
+				why = fmt.Sprintf("moves %.2g m in plan", off)
+			}
+			continue
+		}
+		return ""
+	}
+	return why
 }
