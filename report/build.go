@@ -188,6 +188,16 @@ type BuildSettings struct {
 	// seen in to be followed along the route as a track of its own
 	// (Document.Conductors); 0 means 3, negative follows none.
 	TrackMinStations int
+	// LineAbove lets Build fit one line above the sensors (an overhead
+	// line, a cable tray) beside the buried lines of groups whose fits
+	// miss by farAnyMisfit times the noise, and take it when the survey
+	// agrees (refitLinesAbove); the line is reported in
+	// Document.LinesAbove, never as a buried conductor. DC only.
+	LineAbove bool
+	// LineAboveWhy adds a warning saying why a line above that was tried
+	// was not taken (the survey's groups disagreed, a turned sensor fitted
+	// as well).
+	LineAboveWhy bool
 	// Progress, when not nil, is told how far the search for magnetised
 	// objects has got, the longest part of Build on a survey with many
 	// groups (progress.go); its calls come one at a time.
@@ -329,6 +339,15 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 	// Build's own copy of the fits: the analyses below replace some of
 	// their results (leadByPosition, checkDipoles, markSplitSums).
 	fits = append([]Fit(nil), fits...)
+	if bs.LineAbove && !ac {
+		la, why := refitLinesAbove(fits, &bs)
+		if la != nil {
+			d.LinesAbove = []LineAbove{*la}
+			d.Warnings = append(d.Warnings, la.words())
+		} else if why != "" && bs.LineAboveWhy {
+			d.Warnings = append(d.Warnings, why)
+		}
+	}
 	// A --reference-z level against the sensors' own heights: groups
 	// whose sensors stand far above it are not blamed for a line above it.
 	levelWarn, levelOff := referenceLevelWarnings(fits, d.Frame.Origin)

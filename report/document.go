@@ -74,6 +74,11 @@ type Document struct {
 	// decreasing current. Empty when every group holds one conductor or
 	// none was seen in enough groups.
 	Conductors []Track `json:"conductors,omitempty"`
+	// LinesAbove are conductors above the sensors (overhead lines, cable
+	// trays) fitted beside the buried lines (BuildSettings.LineAbove):
+	// sources of their own kind, never in Groups' sources, the route,
+	// Conductors or a cover check.
+	LinesAbove []LineAbove `json:"lines_above_sensors,omitempty"`
 	// Findings list what a crew should act on, most pressing first.
 	Findings []Finding `json:"findings"`
 	// Warnings are notes about the run that may need action (skipped

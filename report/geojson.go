@@ -312,6 +312,9 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 			fc.Features = append(fc.Features, feature{Type: "Feature", Geometry: geom, Properties: props})
 		}
 	}
+	for i := range d.LinesAbove {
+		fc.Features = append(fc.Features, d.lineAboveFeature(&d.LinesAbove[i]))
+	}
 	findingIDs := d.FindingIDs()
 	for fi, f := range d.Findings {
 		props := map[string]any{

@@ -93,6 +93,7 @@ func runDemo(ctx context.Context, out string, csvOpt report.CSVOptions, stdout, 
 		coverCode:    "UK 11 kV distribution practice, 600-700 mm",
 		title:        "Fenwick Lane 11 kV cable route (demo)",
 		keepNames:    []string{demoLog},
+		lineAbove:    true,
 	}
 	if err := o.check(nil); err != nil {
 		return err

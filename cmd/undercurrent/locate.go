@@ -70,17 +70,21 @@ type locateOptions struct {
 	// --along-window: alongText as given; alongLen the window length, m
 	// (0 auto, -1 off); alongAuto when the run chose it, alongWhy the
 	// reason (alongwindows.go).
-	alongText  string
-	alongLen   float64
-	alongAuto  bool
-	alongWhy   string
-	alongTwo   []string // warnings of logs cut into windows that lie on two tracks
-	json       bool
-	out        string
-	minCover   float64
-	coverCode  string
-	referenceZ float64
-	hasRefZ    bool
+	alongText string
+	alongLen  float64
+	alongAuto bool
+	alongWhy  string
+	alongTwo  []string // warnings of logs cut into windows that lie on two tracks
+	json      bool
+	out       string
+	minCover  float64
+	lineAbove bool
+	// lineAboveSet: --line-above was given, so a line above that was
+	// tried and not taken is said why.
+	lineAboveSet bool
+	coverCode    string
+	referenceZ   float64
+	hasRefZ      bool
 	// sensorHeight is the bare --sensor-height, for every log not named
 	// in heightPerLog (--sensor-height LOG=H, perlog.go); sensorHeights
 	// the flag's values as given.
@@ -170,6 +174,7 @@ func (o *locateOptions) setFlags(fs *pflag.FlagSet) {
 	fs.BoolVar(&o.json, "json", false, "print the result document (JSON) on stdout")
 	fs.StringVarP(&o.out, "output", "o", "", "write results.json, results.csv, findings.csv, route.geojson and report.html into `DIR`")
 	fs.BoolVar(&o.csvDecimalComma, "csv-decimal-comma", false, "write results.csv and findings.csv with a semicolon between fields and a decimal comma (60,015), for a spreadsheet set to a language that writes decimals so (German, French, ...), which takes the usual 60.015 for 60015; text cells are as usual; needs -o")
+	fs.BoolVar(&o.lineAbove, "line-above", true, "where most traverses' fits miss by far (20x the noise), fit one line above the sensors (an overhead line, a cable tray) beside the buried lines, and keep it when every such traverse agrees on it and a sensor turned half round does not fit as well (DC); given, also say why one was not kept; =false never fits one")
 	fs.Float64Var(&o.minCover, "min-cover", 0, "report cover shallower than `M` metres (needs a ground reference: --sensor-height or --reference-z)")
 	fs.StringVar(&o.coverCode, "cover-code", "", "the code or practice the minimum cover comes from, quoted in the report (\"NEC Table 300.5\")")
 	fs.Float64Var(&o.referenceZ, "reference-z", 0, "report depths below the ground surface at up = `Z` metres, one flat level for the whole survey, instead of below the sensors' mean height; up is the log's local frame (on a latitude/longitude/height log, relative to the origin's height, by default the first reading's), so a ground height of G in the log's datum is Z = G minus the origin's height; warned when it lies above the sensors or does not fit a route whose sensors climb")
@@ -226,6 +231,7 @@ func (o *locateOptions) check(fs *pflag.FlagSet) error {
 		}
 	}
 	o.baseHoldSet = fs != nil && fs.Changed("base-hold")
+	o.lineAboveSet = fs != nil && fs.Changed("line-above")
 	if o.baseHold < 0 || math.IsNaN(o.baseHold) {
 		return usageErrorf("--base-hold %g: want a time in seconds >= 0", o.baseHold)
 	}
@@ -2899,6 +2905,8 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 			// is not given.
 			MeasuredNoise: medianOf(sv.windowSigma) + dcMeasuredNoise(sv),
 			KeptRails:     strings.Join(sv.keptRails, "; "),
+			LineAbove:     o.lineAbove,
+			LineAboveWhy:  o.lineAbove && o.lineAboveSet,
 			Progress:      o.buildProgress,
 		})
 	})

@@ -231,6 +231,11 @@ type Conductor struct {
 	// only. Both keys are given or neither.
 	ChangeAt     *float64 `toml:"change_at_s"`
 	CurrentAfter *float64 `toml:"current_after_a"`
+
+	// Overhead marks a line above a walked survey (an overhead line, a
+	// cable tray over a walkway): a horizontal line at least 0.5 m above
+	// the sensor height, which walked surveys otherwise refuse.
+	Overhead bool `toml:"overhead"`
 }
 
 // Limits on what a scenario may ask for, so that a typing slip cannot fill
@@ -485,6 +490,15 @@ func (sc *Scenario) validateConductor(i int) error {
 	if sc.Survey.Pattern == "fixed" {
 		if err := sc.fixedClearance(i); err != nil {
 			return err
+		}
+		return sc.validateChange(i)
+	}
+	if c.Overhead {
+		if c.Kind != "line" || math.Abs((*c.Direction)[2]) >= 1e-12*norm(*c.Direction) {
+			return bad("overhead", "overhead = true is for a horizontal line (kind \"line\", direction with no up component)")
+		}
+		if low := sc.Sensor.Height + 0.5; c.Point[2] < low {
+			return bad("overhead", "an overhead line at %g m is not at least 0.5 m above the sensor height %g m", c.Point[2], sc.Sensor.Height)
 		}
 		return sc.validateChange(i)
 	}
