@@ -70,6 +70,12 @@ const positionStep = 1e-3
 // each reading's variance.
 const PositionSigmaNote = "position uncertainty in the reading variances"
 
+// PositionSigmaShortNote is in the PositionSigmaNote of a fit whose
+// readings miss it by over positionRatioHigh times the variance the noise
+// and the positions explain: without it that whole variance holds the
+// misfit (report judges such a fit's misfit against it).
+const PositionSigmaShortNote = "the position sigmas may be too small, or the model misses"
+
 // PositionSystematicNote ends the note of a fit with position sigmas whose
 // residuals are correlated from reading to reading (SerialNotePrefix).
 const PositionSystematicNote = "the residuals are correlated from reading to reading: position errors that are not independent from reading to reading (a shifted traverse, a drift, a chainage that stretches) are not this model, and the position sigmas neither cover nor mend them; check the positioning against marks"
@@ -398,7 +404,7 @@ func (f *fitter) positionWeights(c *candidate) (string, error) {
 		if hp < 0.95*plan || hu < 0.95*up {
 			what = "the position scatter taken"
 		}
-		note += fmt.Sprintf("; the readings miss the fit by %.2g times what the noise and %s explain: the position sigmas may be too small, or the model misses, and the uncertainties are widened by that ratio", math.Sqrt(k), what)
+		note += fmt.Sprintf("; the readings miss the fit by %.2g times what the noise and %s explain: %s, and the uncertainties are widened by that ratio", math.Sqrt(k), what, PositionSigmaShortNote)
 	}
 	return note, nil
 }
