@@ -2791,7 +2791,9 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 	if w := alongTracksWarning(o, sv, sv.groupCol); w != "" {
 		alerts = append(alerts, w)
 	}
-	if w := splitGroupsWarning(sv); w != "" {
+	// Windows cut by the run itself are no names a user gave: their
+	// traverses side by side are no mislabel.
+	if w := splitGroupsWarning(sv); w != "" && !o.windowed() {
 		alerts = append(alerts, w)
 	}
 	if sv.swings != nil {
