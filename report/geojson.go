@@ -152,7 +152,7 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 			"these features unless told the frame."
 	}
 	if p := d.PositionSigma; p != nil {
-		fc.SigmaNote = "Sigmas count " + p.Words() + ", as given with --position-sigma; a magnetised object's leave the positions' uncertainty out"
+		fc.SigmaNote = "Sigmas count " + p.Words() + ", " + p.Given() + "; a magnetised object's leave the positions' uncertainty out"
 	}
 	if r := d.Route; r != nil {
 		// conductor 1 named as its Points and findings name it, so that a
