@@ -832,7 +832,14 @@ func compareRoute(o, n *Route, toOld func([3]float64) [3]float64, planOnly, dc b
 	}
 	// NEW's stations without a partner between two of OLD's: compared
 	// with OLD interpolated along its chainage (never beyond its ends).
-	if len(cps) >= 2 {
+	// Not across a gap in OLD (a station left out): at most twice OLD's
+	// median spacing.
+	var gaps []float64
+	for i := 1; i < len(os); i++ {
+		gaps = append(gaps, os[i].st.Chainage-os[i-1].st.Chainage)
+	}
+	maxGap := 2 * cmpMedian(gaps)
+	if len(cps) >= 2 && len(gaps) > 0 {
 		for j, x := range ns {
 			if matchedN[j] {
 				continue
@@ -840,7 +847,7 @@ func compareRoute(o, n *Route, toOld func([3]float64) [3]float64, planOnly, dc b
 			ch := mapCh(x.st.Chainage)
 			for i := 1; i < len(os); i++ {
 				a, b := os[i-1].st, os[i].st
-				if !(a.Chainage <= ch && ch <= b.Chainage) || b.Chainage == a.Chainage {
+				if !(a.Chainage <= ch && ch <= b.Chainage) || b.Chainage == a.Chainage || b.Chainage-a.Chainage > maxGap {
 					continue
 				}
 				w := (ch - a.Chainage) / (b.Chainage - a.Chainage)
