@@ -1222,6 +1222,9 @@ func (c *Comparison) listChanges() {
 			if st.CurrentAlongFlowA != nil {
 				a := *st.CurrentAlongFlowA
 				ch.Value = ptr(a)
+				if st.After != st.Before {
+					ch.Sigma = ptr(math.Abs(a) * math.Hypot(st.BeforeSigma, st.AfterSigma) / math.Abs(st.After-st.Before))
+				}
 				verb, why := "falls", "current leaving the conductor there (a loss new or grown since OLD)"
 				if a > 0 {
 					verb, why = "rises", "current joining the conductor there, or a loss OLD had that has shrunk"
@@ -1258,6 +1261,9 @@ func (c *Comparison) listChanges() {
 				}
 			} else {
 				ch.Value = ptr(st.CurrentA)
+				if st.After != st.Before {
+					ch.Sigma = ptr(math.Abs(st.CurrentA) * math.Hypot(st.BeforeSigma, st.AfterSigma) / math.Abs(st.After-st.Before))
+				}
 				ch.Message = head + fmt.Sprintf(": about %s A if the current is fed from the start of the route (the reverse if fed from the far end): a loss that changed there", signed(strconv.FormatFloat(st.CurrentA, 'g', 3, 64)))
 			}
 			c.Changes = append(c.Changes, ch)

@@ -152,7 +152,7 @@ func TestCompareLevelFromUpstream(t *testing.T) {
 			if level == nil || level.Value == nil || level.Sigma == nil || *level.Value != r.Level || level.Unit != "ratio" {
 				t.Fatalf("level-change %+v, want the level as its value", level)
 			}
-			if step == nil || step.Value == nil || !(math.Abs(*step.Value+0.4) < 0.05) || !strings.Contains(step.Message, "falls") {
+			if step == nil || step.Value == nil || step.Sigma == nil || !(math.Abs(*step.Value+0.4) < 0.05) || !strings.Contains(step.Message, "falls") {
 				t.Fatalf("ratio-step %+v, want a loss of about 0.4 A along the flow", step)
 			}
 			// Every flagged station past the leak is listed under the step.
