@@ -195,7 +195,9 @@ func TestGeoJSONObjectMomentFromVector(t *testing.T) {
 }
 
 // TestGeoJSONFindingValues: a finding's values are properties a GIS can
-// label and filter by, named from the value's name and unit.
+// label and filter by, named by the value's key (ValueKey): its name
+// and unit in snake case for the keys of this version, a sigma's with
+// "_sigma" before the unit.
 func TestGeoJSONFindingValues(t *testing.T) {
 	for _, tc := range []struct {
 		v    Value

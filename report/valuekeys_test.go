@@ -9,8 +9,6 @@ import (
 	"regexp"
 	"strings"
 	"testing"
-
-	"undercurrent/inverse/simulate"
 )
 
 // TestValueKeyTable: the table of value keys is well formed: every key
@@ -83,15 +81,8 @@ func TestValueKeyLookup(t *testing.T) {
 // further conductors and a crossing line.
 func valueKeyDocs(t *testing.T) map[string]*Document {
 	t.Helper()
-	load := func(name string) *simulate.Scenario {
-		sc, err := simulate.Load(filepath.Join("..", "testdata", name))
-		if err != nil {
-			t.Fatal(err)
-		}
-		return sc
-	}
 	docs := map[string]*Document{
-		"demo":    simulatedACDoc(t, load(filepath.Join("demo", "fenwick-lane.toml")), 50),
+		"demo":    simulatedACDoc(t, scenarioFile(t, filepath.Join("demo", "fenwick-lane.toml")), 50),
 		"fixture": fenwickLane(true),
 	}
 	for _, name := range []string{
