@@ -119,8 +119,8 @@ const (
 //     route's conductor, the track's number for a further one, as
 //     findings.csv gives it; absent for a lone line), "lone_line": true when it is about a further
 //     line that no conductor's track follows (Finding.Lone), and each of
-//     its values as a property named by its key (ValueKey ("step_a" and
-//     "step_sigma_a", "cover_m", ...)).
+//     its values as a property named by its key (ValueKey: "step_a" and
+//     "step_sigma_a", "cover_m", ...).
 //
 // Sigmas count the reading noise (uncertainty_note of results.json);
 // where the fits counted the positions' uncertainty too
