@@ -979,7 +979,15 @@ type Finding struct {
 
 // Value is a number with its sigma and unit.
 type Value struct {
-	Name  string  `json:"name"`
+	// Name is a phrase for a crew ("location (chainage)"), which a later
+	// version may reword.
+	Name string `json:"name"`
+	// Key is the value's machine key ("location_chainage_m", ValueKey),
+	// which is not reworded: findingValueKeys names every value of every
+	// kind of finding and README lists them. Set when the document is
+	// written, as Finding.ID is; empty in a document being built or read
+	// back.
+	Key   string  `json:"key,omitempty"`
 	Value float64 `json:"value"`
 	Sigma float64 `json:"sigma,omitempty"`
 	Unit  string  `json:"unit,omitempty"`
