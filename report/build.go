@@ -1938,6 +1938,32 @@ func fixedFailedFindings(d *Document, fits []Fit, r *route.Route) {
 // weights leave them unused, inverse.PositionSigmaRobustNote); nil when no
 // fit's do (the positions taken as exact).
 func positionSigma(fits []Fit) *PositionSigma {
+	// The readings' own sigmas (the log's columns): the largest over
+	// every fit, floored by the settings' as the fit floors them.
+	var own *PositionSigma
+	for _, f := range fits {
+		if f.Problem == nil || f.Problem.PositionSigmas == nil || (f.Settings != nil && f.Settings.Robust) {
+			continue
+		}
+		if own == nil {
+			own = &PositionSigma{Columns: true}
+			if s := f.Settings; s != nil {
+				own.FloorPlan, own.FloorUp = s.PositionSigmaPlan, s.PositionSigmaUp
+			}
+		}
+		for _, v := range f.Problem.PositionSigmas {
+			if v[0] > own.Plan {
+				own.Plan = v[0]
+			}
+			if v[1] > own.Up {
+				own.Up = v[1]
+			}
+		}
+	}
+	if own != nil && own.Plan+own.Up > 0 {
+		own.Plan, own.Up = max(own.Plan, own.FloorPlan), max(own.Up, own.FloorUp)
+		return own
+	}
 	for _, f := range fits {
 		if s := f.Settings; s != nil && !s.Robust && (s.PositionSigmaPlan > 0 || s.PositionSigmaUp > 0) {
 			return &PositionSigma{Plan: s.PositionSigmaPlan, Up: s.PositionSigmaUp}

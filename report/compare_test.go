@@ -197,10 +197,17 @@ func TestCompareFindsPlantedChanges(t *testing.T) {
 	for _, ch := range c.Changes {
 		kinds[ch.Kind]++
 	}
-	want := map[string]int{"current-change": 8, "cover-change": 3, "ratio-step": 1, "step-grown": 1}
+	want := map[string]int{"cover-change": 3, "ratio-step": 1, "step-grown": 1}
 	for k, n := range kinds {
 		if want[k] != n {
 			t.Errorf("%d changes of kind %s, want %d: %+v", n, k, want[k], c.Changes)
+		}
+	}
+	// The stations past the defect restate its ratio step: listed under
+	// it, not one change each.
+	for _, ch := range c.Changes {
+		if ch.Kind == "ratio-step" && strings.Join(ch.Stations, " ") != "T14 T15 T16 T17 T18 T19 T20 T21" {
+			t.Errorf("ratio step lists %v, want T14-T21", ch.Stations)
 		}
 	}
 	// The outputs: the cautions in the text and the JSON; one CSV row per

@@ -60,8 +60,10 @@ func TestFindingIDsJoinFiles(t *testing.T) {
 		t.Fatal(err)
 	}
 	col := slices.Index(rows[0], "id")
-	if col != len(rows[0])-1 {
-		t.Fatalf("findings.csv header %q: want id as the last column (added at the end)", rows[0])
+	// id was added at the end, and the values' keys after it
+	// (value_key, value_keys): the columns before stay where they were.
+	if col != len(rows[0])-3 || !slices.Equal(rows[0][col+1:], []string{"value_key", "value_keys"}) {
+		t.Fatalf("findings.csv header %q: want id, value_key and value_keys as the last columns (added at the end)", rows[0])
 	}
 	var fromCSV []string
 	for _, r := range rows[1:] {

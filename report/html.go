@@ -476,7 +476,7 @@ func sigmaNoteHTML(pos *PositionSigma) string {
 			"to a real conductor, errors in the sensor positions (--position-sigma counts their scatter where it is known). " +
 			"Real errors are often many times larger."
 	}
-	return "The ± figures of the fits (one standard deviation) count " + pos.Words() + ", as given with --position-sigma " +
+	return "The ± figures of the fits (one standard deviation) count " + pos.Words() + ", " + pos.Given() + " " +
 		"(a magnetised object's leave the positions' uncertainty out), " +
 		"not the error of the model: bends, a neighbouring conductor, the straight infinite line fitted " +
 		"to a real conductor, errors in the sensor positions beyond the uncertainty given (a shift that many readings share). " +

@@ -39,7 +39,10 @@ Stations of conductor 1 are matched by chainage when both routes measure
 it from one place (their matched points lie within --tolerance in plan),
 else by their position in plan; further conductors by their offset from
 conductor 1 (within --tolerance) and their azimuth (within 20 degrees).
-Stations and conductors without a partner are listed. Two surveys placed
+Conductors without a partner are listed (one of NEW's with its current and
+locate's doubts, such as "not a buried conductor"), stations without one
+noted; NEW's stations between two of OLD's (a closer spacing) are compared
+with OLD interpolated along the route. Two surveys placed
 about different geodetic origins (logs with latitude and longitude each
 placed about their own first reading) are brought into OLD's frame; one
 placed about an origin and one in local metres only are refused.
@@ -55,22 +58,30 @@ ground, while a threshold alone would flag the noise of a poorly determined
 station.
 
 A transmitter or CP rectifier set differently changes every current by one
-factor. The ratio NEW/OLD along the route is tested for that: its level (the
-weighted mean of the stations that agree with the median ratio) and the most
-significant single step in it. When the level differs from 1 beyond both
-thresholds the station changes are measured beyond it (NEW - level x OLD),
-so a re-set rectifier is not read as a loss at every station; a step in the
-ratio is a loss that changed there. AC phases are not compared (they are
-not comparable between two walks).
+factor. The ratio NEW/OLD along the route is tested for that: its level and
+the most significant single step in it. When the level differs from 1
+beyond both thresholds the station changes are measured beyond it (NEW -
+level x OLD), so a re-set rectifier is not read as a loss at every station;
+a step in the ratio is a loss that changed there. Without a step the level
+is the weighted mean of the stations that agree with the median ratio; with
+one it is the ratio on the side the current flows from (DC currents are
+signed along increasing chainage), so a fall along the flow is a loss
+wherever the leak lies, and the stations past it are listed under the step.
+For AC (no direction) both sides' readings are given and each station is
+measured against its own side's. A change of depth shared by the stations
+(a sensor height or ground level given differently) is reported once and
+the stations' cover changes measured beyond it. AC phases are not compared
+(they are not comparable between two walks).
 
 Prints a table of the matched stations (flagged changes marked *), the
 ratio, the current steps and a list of what changed, with the safety
 cautions; --json prints one JSON object instead (stable keys, the cautions
 first); -o FILE.csv also writes one row per matched station. Exits 0 when
 the comparison was made, whatever it found; 1 when it cannot be (modes DC
-and AC, different AC frequencies, no route, no station in common, one file
-geo-referenced and the other not: the message names both files and what
-differs).
+and AC, different AC frequencies, no route, no station in common (the
+message gives the nearest separation and the --tolerance that would match),
+one file geo-referenced and the other not: the message names both files and
+what differs).
 
 Examples (after the README's "Comparing two surveys", which writes the
 result directories a, b, results and results2):
