@@ -870,7 +870,7 @@ func markLoneMisfits(groups []Group, fits []Fit, bs *BuildSettings, rs *route.Se
 // smallShareCauses names the likely causes of a misfit many times the
 // noise at a small share of a strong signal (several lines fitted beside
 // one another, farMisfitLines).
-const smallShareCauses = "a misfit this many times the noise at so small a share of the signal is what a sensor tilted by a constant angle with no attitude logged leaves over a strong conductor (a 1 degree tilt turns its field by 1.7% of it and pulled 300 A to 305 A, 6 sigma, in simulation), or a small conductor or object beside it: the estimates may be off by several times their sigmas; log the sensor's roll and pitch (--frame sensor) or check it is level"
+const smallShareCauses = "a misfit this many times the noise at so small a share of the signal is what a bend or a change of depth close by, a small conductor or object beside the line, or a sensor tilted by a constant angle with no attitude logged leaves over a strong conductor (a 1 degree tilt turns its field by 1.7% of it and pulled 300 A to 305 A in simulation): the estimates may be off by more than their stated uncertainty; if the sensor may have been tilted, log its roll and pitch (--frame sensor) or check it is level"
 
 // farMisfit is the multiple of its own readings' noise beyond which a fit of
 // farMisfitLines lines or more counts as missing them in measuredMisfits
