@@ -413,6 +413,13 @@ func onRoute(os []cstation, p [3]float64) (ch, off float64) {
 			ch, off = a.st.Chainage+t*(b.st.Chainage-a.st.Chainage), d
 		}
 	}
+	if math.IsNaN(ch) { // every station at one point: the nearest's chainage
+		for _, a := range os {
+			if d := math.Hypot(p[0]-a.point[0], p[1]-a.point[1]); !(d >= off) {
+				ch, off = a.st.Chainage, d
+			}
+		}
+	}
 	return ch, off
 }
 
