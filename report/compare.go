@@ -84,6 +84,16 @@ type Comparison struct {
 	Steps      []StepComparison      `json:"steps"`
 	Changes    []Change              `json:"changes"`
 	Matched    int                   `json:"matched_stations"`
+	// PoorFits counts the matched stations whose group's fit locate
+	// called poor, ambiguous or failed in OLD or NEW (groups[].problem,
+	// or not ok): they are left out of every ratio's level and step
+	// (StationChange.PoorFit), and their own changes are doubtful.
+	// Found in review: a NEW survey whose 13 fits were all poor and
+	// biased read as a 2% supply drop at 44 sigma with no word.
+	PoorFits int `json:"poor_fit_stations,omitempty"`
+	// oldPoor and newPoor are the keys of each side's groups whose fit
+	// is not sound.
+	oldPoor, newPoor map[string]bool
 }
 
 // ConductorComparison compares one conductor found in both surveys.
@@ -185,6 +195,11 @@ type StationChange struct {
 	// NowShallow is true when NEW's cover is under the minimum cover and
 	// OLD's was not.
 	NowShallow bool `json:"now_under_min_cover,omitempty"`
+	// PoorFit names the side(s) whose group's fit here is not sound
+	// ("OLD", "NEW" or "both"; Comparison.PoorFits): the station is then
+	// left out of the ratio's level and steps, and its changes are
+	// doubtful. Empty when both are sound.
+	PoorFit string `json:"poor_fit,omitempty"`
 }
 
 // RatioProfile is the test of NEW/OLD current along a conductor for one
@@ -458,6 +473,7 @@ func Compare(old, newDoc *Document, oldName, newName string, s CompareSettings) 
 		MinCurrentChangeA: s.MinCurrentChange, MinCoverChangeM: s.MinCoverChange,
 		Sigmas: s.Sigmas, ToleranceM: s.Tolerance,
 		Conductors: []ConductorComparison{}, Steps: []StepComparison{}, Changes: []Change{},
+		oldPoor: poorGroups(old), newPoor: poorGroups(newDoc),
 	}
 	// NEW's positions in OLD's frame.
 	toOld := func(p [3]float64) [3]float64 { return p }
@@ -542,8 +558,47 @@ func Compare(old, newDoc *Document, oldName, newName string, s CompareSettings) 
 		}
 		c.compareSteps(old, newDoc, oc, nc, p.oi, mapCh, cc, s)
 	}
+	c.poorNote()
 	c.listChanges()
 	return c, nil
+}
+
+// poorGroups returns the keys of d's groups whose fit is not sound: not
+// ok, or with a problem (poor, ambiguous).
+func poorGroups(d *Document) map[string]bool {
+	m := map[string]bool{}
+	for _, g := range d.Groups {
+		if !g.OK || g.Problem != "" {
+			m[g.Key] = true
+		}
+	}
+	return m
+}
+
+// poorNote counts the matched stations on a fit that is not sound
+// (Comparison.PoorFits) and says so in the notes.
+func (c *Comparison) poorNote() {
+	c.PoorFits = 0
+	nOld, nNew := 0, 0
+	for _, cc := range c.Conductors {
+		for _, st := range cc.Stations {
+			if st.PoorFit == "" {
+				continue
+			}
+			c.PoorFits++
+			if st.PoorFit != "NEW" {
+				nOld++
+			}
+			if st.PoorFit != "OLD" {
+				nNew++
+			}
+		}
+	}
+	if c.PoorFits == 0 {
+		return
+	}
+	c.Notes = append(c.Notes, fmt.Sprintf("%d of %d matched stations rest on a fit that locate called poor, ambiguous or failed (%d in OLD, %d in NEW; marked \"poor fit\"): a poor fit can be biased beyond its sigmas, so they are left out of the ratio NEW/OLD's level and steps, and their own changes of current and %s are doubtful; look at those groups' problems in the surveys' reports before reading a change there",
+		c.PoorFits, c.Matched, nOld, nNew, orDepth(c.DepthQuantity)))
 }
 
 // nearestStations returns the least separation of a used station of o
@@ -906,6 +961,14 @@ func compareRoute(o, n *Route, toOld func([3]float64) [3]float64, planOnly, dc b
 		oc, ocs := depthOf(a.st, c.DepthQuantity)
 		nc, ncs := depthOf(b.st, c.DepthQuantity)
 		setCover(&sc, oc, ocs, nc, ncs, c)
+		switch po, pn := c.oldPoor[a.st.Key], c.newPoor[b.st.Key]; {
+		case po && pn:
+			sc.PoorFit = "both"
+		case po:
+			sc.PoorFit = "OLD"
+		case pn:
+			sc.PoorFit = "NEW"
+		}
 		cc.Stations = append(cc.Stations, sc)
 	}
 	for i, x := range os {
@@ -1099,7 +1162,8 @@ func ratioProfile(st []StationChange, medI, minI float64, dc bool, s CompareSett
 	var idx []int
 	var r, rs []float64
 	for i, x := range st {
-		if x.Ratio != nil && *x.RatioSigma > 0 {
+		// A station on a poor fit is left out (Comparison.PoorFits).
+		if x.Ratio != nil && *x.RatioSigma > 0 && x.PoorFit == "" {
 			idx = append(idx, i)
 			r, rs = append(r, *x.Ratio), append(rs, *x.RatioSigma)
 		}
@@ -1483,6 +1547,10 @@ func (c *Comparison) listChanges() {
 			if sc.Interpolated {
 				where = fmt.Sprintf("NEW's %s, between OLD's %s,", sc.NewKey, strings.Replace(sc.OldKey, "-", " and ", 1))
 			}
+			doubt := ""
+			if sc.PoorFit != "" {
+				doubt = fmt.Sprintf("; doubtful: %s's fit here is poor, ambiguous or failed", map[string]string{"both": "each survey", "OLD": "OLD", "NEW": "NEW"}[sc.PoorFit])
+			}
 			if sc.CurrentFlag && !grouped[sc.OldKey] {
 				d, sd, z, how := sc.CurrentChange, sc.CurrentSigma, sc.CurrentZ, ""
 				if sc.BeyondLevel != nil {
@@ -1491,8 +1559,8 @@ func (c *Comparison) listChanges() {
 				c.Changes = append(c.Changes, Change{Kind: "current-change", Conductor: cc.Old, Chainage: roundCh(sc.Chainage),
 					Groups: []string{sc.OldKey, sc.NewKey}, OldGroups: []string{sc.OldKey}, NewGroups: []string{sc.NewKey},
 					Value: ptr(d), Sigma: ptr(sd), Unit: "A",
-					Message: fmt.Sprintf("%s%s at chainage %.1f m: current %s A, was %s A: changed %s A%s (%.1f sigma)",
-						who, where, sc.Chainage, pmText(sc.NewCurrent, sc.NewCurrentSig, 3), pmText(sc.OldCurrent, sc.OldCurrentSig, 3), signed(pmText(d, sd, 3)), how, math.Abs(z))})
+					Message: fmt.Sprintf("%s%s at chainage %.1f m: current %s A, was %s A: changed %s A%s (%.1f sigma)%s",
+						who, where, sc.Chainage, pmText(sc.NewCurrent, sc.NewCurrentSig, 3), pmText(sc.OldCurrent, sc.OldCurrentSig, 3), signed(pmText(d, sd, 3)), how, math.Abs(z), doubt)})
 			}
 			if sc.CoverFlag {
 				extra := ""
@@ -1510,8 +1578,8 @@ func (c *Comparison) listChanges() {
 				c.Changes = append(c.Changes, Change{Kind: "cover-change", Conductor: cc.Old, Chainage: roundCh(sc.Chainage),
 					Groups: []string{sc.OldKey, sc.NewKey}, OldGroups: []string{sc.OldKey}, NewGroups: []string{sc.NewKey},
 					Value: ptr(d), Sigma: ptr(sd), Unit: "m",
-					Message: fmt.Sprintf("%s%s at chainage %.1f m: %s %s m, %s %s m: changed %s m%s (%.1f sigma)%s",
-						who, where, sc.Chainage, q, pmText(*sc.NewCover, *sc.NewCoverSig, 3), was, pmText(*sc.OldCover, *sc.OldCoverSig, 3), signed(pmText(d, sd, 3)), how, math.Abs(z), extra)})
+					Message: fmt.Sprintf("%s%s at chainage %.1f m: %s %s m, %s %s m: changed %s m%s (%.1f sigma)%s%s",
+						who, where, sc.Chainage, q, pmText(*sc.NewCover, *sc.NewCoverSig, 3), was, pmText(*sc.OldCover, *sc.OldCoverSig, 3), signed(pmText(d, sd, 3)), how, math.Abs(z), extra, doubt)})
 			}
 		}
 		if len(cc.OldOnly) > 0 {
@@ -1692,6 +1760,9 @@ func WriteComparisonText(w io.Writer, c *Comparison) error {
 				if s.NowShallow {
 					cov += " now shallow"
 				}
+			}
+			if s.PoorFit != "" {
+				cov += "  poor fit (" + s.PoorFit + ")"
 			}
 			fmt.Fprintf(&b, "%-10s %-10s %9.1f %+11.4g ± %-8.2g%s %8.1f %18s %s\n", s.OldKey, s.NewKey, s.Chainage, d, sd, mark, z, ratio, cov)
 		}

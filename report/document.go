@@ -119,6 +119,11 @@ type PositionSigma struct {
 	Columns   bool    `json:"from_log_columns,omitempty"`
 	FloorPlan float64 `json:"floor_plan_m,omitempty"`
 	FloorUp   float64 `json:"floor_up_m,omitempty"`
+	// Sources names the log columns read as the sigmas, with the unit
+	// each was taken in: "hacc (mm) and vacc (m)" (set by the caller
+	// that read the logs; empty when it did not say). A column that
+	// means something else, or a unit misread, shows here.
+	Sources string `json:"columns,omitempty"`
 }
 
 // Words says what a fit's sigma counts with these position sigmas, for
@@ -129,8 +134,12 @@ func (p *PositionSigma) Words() string {
 		return "the reading noise"
 	}
 	if p.Columns {
-		w := fmt.Sprintf("the reading noise and position uncertainty (each reading's own, from the log's position sigma columns, up to %s m plan, %s m height",
-			strconv.FormatFloat(p.Plan, 'g', 3, 64), strconv.FormatFloat(p.Up, 'g', 3, 64))
+		from := "the log's position sigma columns"
+		if p.Sources != "" {
+			from = "the log's columns " + p.Sources
+		}
+		w := fmt.Sprintf("the reading noise and position uncertainty (each reading's own, from %s, up to %s m plan, %s m height",
+			from, strconv.FormatFloat(p.Plan, 'g', 3, 64), strconv.FormatFloat(p.Up, 'g', 3, 64))
 		if p.FloorPlan+p.FloorUp > 0 {
 			w += fmt.Sprintf("; none below the %s m plan, %s m height given with --position-sigma",
 				strconv.FormatFloat(p.FloorPlan, 'g', 3, 64), strconv.FormatFloat(p.FloorUp, 'g', 3, 64))
@@ -143,6 +152,9 @@ func (p *PositionSigma) Words() string {
 
 // given says where the position sigmas came from, for the notes.
 func (p *PositionSigma) given() string {
+	if p.Columns && p.Sources != "" {
+		return "as the log's columns " + p.Sources + " give them"
+	}
 	if p.Columns {
 		return "as the log's position sigma columns give them"
 	}

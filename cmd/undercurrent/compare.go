@@ -2,7 +2,6 @@ package main
 
 import (
 	"bufio"
-	"bytes"
 	"context"
 	"errors"
 	"fmt"
@@ -82,7 +81,13 @@ the stations' cover changes measured beyond it. AC phases are not compared
 Prints a table of the matched stations (flagged changes marked *), the
 ratio, the current steps and a list of what changed, with the safety
 cautions; --json prints one JSON object instead (stable keys, the cautions
-first); -o FILE.csv also writes one row per matched station. Exits 0 when
+first); -o FILE.csv also writes one row per matched station, and -o
+FILE.html a self-contained page in the style of locate's report.html: the
+safety cautions first, the ratio NEW/OLD and what it means, the list of what
+changed, and per conductor the current and the cover of OLD and NEW along
+OLD's chainage (± two sigma, with the minimum cover) and the table of
+matched stations. Each file is written whole or not at all. For three or
+more surveys see trend. Exits 0 when
 the comparison was made, whatever it found; 1 when it cannot be (modes DC
 and AC, different AC frequencies, no route, no station in common (the
 message gives the nearest separation and the --tolerance that would match),
@@ -94,14 +99,15 @@ result directories a, b, results and results2):
   undercurrent compare a b
   undercurrent compare results results2
   undercurrent compare --json results results2 > changes.json
-  undercurrent compare --min-current-change 0.05 --min-cover-change 0.15 results results2 -o changes.csv`,
+  undercurrent compare --min-current-change 0.05 --min-cover-change 0.15 results results2 -o changes.csv
+  undercurrent compare results results2 -o changes.html`,
 		setFlags: func(fs *pflag.FlagSet) {
 			fs.Float64Var(&set.MinCurrentChange, "min-current-change", 0, "flag a change of current only from `A` amperes (0: 5% of OLD's median current on each conductor)")
 			fs.Float64Var(&set.MinCoverChange, "min-cover-change", report.DefaultMinCoverChange, "flag a change of cover (or depth) only from `M` metres")
 			fs.Float64Var(&set.Sigmas, "sigmas", report.DefaultCompareSigmas, "flag a change only beyond `K` combined standard deviations")
 			fs.Float64Var(&set.Tolerance, "tolerance", report.DefaultTolerance, "stations within `M` metres (along the route, or in plan) are one station")
 			fs.BoolVar(&asJSON, "json", false, "print the comparison as one JSON object instead of the table")
-			fs.StringVarP(&out, "output", "o", "", "also write one row per matched station to CSV `FILE` (.csv); an existing FILE is replaced only when compare wrote it")
+			fs.StringVarP(&out, "output", "o", "", "also write `FILE`: .csv one row per matched station, .html the page for a manager (cautions, ratio, what changed, plots); an existing FILE is replaced only when compare wrote it")
 		},
 		run: func(ctx context.Context, fs *pflag.FlagSet, args []string, stdout, stderr io.Writer) error {
 			if len(args) != 2 {
@@ -134,12 +140,8 @@ result directories a, b, results and results2):
 				return err
 			}
 			if out != "" {
-				tmp, err := stageFile(out, ".csv", func(w io.Writer) error { return report.WriteComparisonCSV(w, c) })
-				if err != nil {
+				if err := writeComparedOut(out, compareOutWriter(out, c)); err != nil {
 					return err
-				}
-				if err := placeFile(tmp, out, true); err != nil {
-					return writeError(out, tmp, err)
 				}
 			}
 			if asJSON {
@@ -177,33 +179,8 @@ func readCompared(path string) (*report.Document, string, error) {
 	return d, name, nil
 }
 
-// checkCompareOut checks -o FILE before any work: a .csv name in a
-// directory that exists, not an input, and replacing only a file compare
-// wrote.
+// checkCompareOut checks -o FILE before any work (checkComparedOut): a
+// .csv or .html name, not an input, replacing only a file compare wrote.
 func checkCompareOut(out string, ins []string) error {
-	if filepath.Ext(out) != ".csv" {
-		return usageErrorf("-o %s: give a .csv file's name", out)
-	}
-	if err := checkOutFile("-o", out, false); err != nil {
-		return err
-	}
-	for _, in := range ins {
-		if sameFile(in, out) || sameFile(filepath.Join(in, "results.json"), out) {
-			return usageErrorf("-o %s is an input", out)
-		}
-	}
-	fi, err := existingOut("-o", out, "a file's name")
-	if err != nil || fi == nil || fi.Size() == 0 {
-		return err
-	}
-	b := make([]byte, len(compareCSVHead))
-	f, err := os.Open(out)
-	if err == nil {
-		_, err = io.ReadFull(f, b)
-		f.Close()
-	}
-	if err != nil || !bytes.Equal(b, []byte(compareCSVHead)) {
-		return usageErrorf("-o %s: the file exists and is not a table compare wrote: it is not replaced; choose another name", out)
-	}
-	return nil
+	return checkComparedOut("compare", out, ins, compareOutHeads)
 }

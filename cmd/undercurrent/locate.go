@@ -956,6 +956,9 @@ type looseLog struct {
 }
 
 type survey struct {
+	// sigmaCols names the log columns read as position sigmas, with
+	// their unit: "hacc (mm)" (possigcols.go).
+	sigmaCols []string
 	// logHeights is each log's sensor height above the ground, m
 	// (--sensor-height, perlog.go), by its path as given; empty without
 	// the flag. datum is the height the depths are referred to
@@ -1290,6 +1293,11 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		sv.warnings = append(sv.warnings, warns...)
 		if err != nil {
 			return nil, withPerLogNote(err, logs)
+		}
+		if !sv.ac {
+			// The position sigma columns named, their zeros and units
+			// checked (possigcols.go).
+			sigmaColumns(o, sv, path, opts, s)
 		}
 		// A DC log in uT read as nT (unitslip.go).
 		if !o.coil.on() && !sv.ac && !o.read.fieldUnitGiven() {
@@ -2975,6 +2983,8 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 	if err != nil {
 		return nil, err
 	}
+	// The columns read as position sigmas (possigcols.go).
+	nameSigmaColumns(doc, sv)
 	// The group the route starts at, in the warning that the order of
 	// the logs given set it (loggroups.go).
 	routeStartNote(doc)
