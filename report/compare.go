@@ -118,6 +118,14 @@ type ConductorComparison struct {
 	// current-step finding says that); their cover is, as a matched
 	// station's.
 	Between []StationChange `json:"new_stations_between_old,omitempty"`
+	// NewChainageOffset is OLD's chainage at NEW's chainage 0, m (NEW's
+	// chainage plus it is OLD's at one place; with NewChainageReversed,
+	// OLD's is it less NEW's): NEW's stations are placed on OLD's
+	// chainage by projecting their plan positions onto OLD's route, and
+	// this is the median of what that gives. Absent with fewer than two
+	// of NEW's stations near OLD's route.
+	NewChainageOffset   *float64 `json:"new_chainage_offset_m,omitempty"`
+	NewChainageReversed bool     `json:"new_chainage_reversed,omitempty"`
 }
 
 // DepthOffset is the change of cover (or depth) that the matched stations
@@ -140,10 +148,14 @@ type DepthOffset struct {
 // StationChange is one station matched in both surveys. Sigmas are one
 // standard deviation; a change's is both surveys' in quadrature.
 type StationChange struct {
-	OldKey        string  `json:"old_key"`
-	NewKey        string  `json:"new_key"`
-	Chainage      float64 `json:"chainage_m"`
-	NewChainage   float64 `json:"new_chainage_m"`
+	OldKey      string  `json:"old_key"`
+	NewKey      string  `json:"new_key"`
+	Chainage    float64 `json:"chainage_m"`
+	NewChainage float64 `json:"new_chainage_m"`
+	// NewOnOld is NEW's station's place on OLD's chainage: its plan
+	// position projected onto OLD's route, m. Chainage is OLD's station's
+	// (for one of Between, this place).
+	NewOnOld      float64 `json:"new_on_old_chainage_m"`
 	Separation    float64 `json:"separation_m"`
 	OldCurrent    float64 `json:"old_current_a"`
 	OldCurrentSig float64 `json:"old_current_sigma_a"`
@@ -238,7 +250,7 @@ func (p *RatioProfile) levelAt(ch float64) (float64, float64, bool) {
 		return 1, 0, false
 	}
 	if p.SideLevels && p.Step != nil {
-		if ch > (p.Step.ChainageFrom+p.Step.ChainageTo)/2 {
+		if ch > p.Step.boundary() {
 			return p.Step.After, p.Step.AfterSigma, p.Step.afterApplied
 		}
 		return p.Step.Before, p.Step.BeforeSigma, p.Step.beforeApplied
@@ -247,7 +259,13 @@ func (p *RatioProfile) levelAt(ch float64) (float64, float64, bool) {
 }
 
 // RatioStep is a step in the ratio profile between two successive matched
-// stations (OLD's keys and chainages).
+// stations (OLD's keys). Its chainages are OLD's and bracket the step with
+// both walks' stations: ChainageFrom is the farther along of the two
+// stations (OLD's and NEW's, placed on OLD's chainage) of the last pair
+// before it, ChainageTo the nearer of the first pair after it; a pair
+// beside the step whose ratio cannot tell the two sides apart (within
+// --sigmas of both) widens the bracket past it, and FromKey and ToKey
+// name the pairs that bound it.
 type RatioStep struct {
 	FromKey      string  `json:"from_key"`
 	ToKey        string  `json:"to_key"`
@@ -271,6 +289,19 @@ type RatioStep struct {
 	CurrentAlongFlowA *float64 `json:"current_along_flow_a,omitempty"`
 
 	beforeApplied, afterApplied bool
+	// split is OLD's chainage between the two pairs the step falls
+	// between (hasSplit): the stations on either side of it are measured
+	// against that side's reading. Else the bracket's middle.
+	split    float64
+	hasSplit bool
+}
+
+// boundary is the chainage that parts the step's two sides.
+func (s *RatioStep) boundary() float64 {
+	if s.hasSplit {
+		return s.split
+	}
+	return (s.ChainageFrom + s.ChainageTo) / 2
 }
 
 // StepComparison compares the current-step findings of both surveys on
@@ -354,6 +385,57 @@ func (s CompareSettings) filled() CompareSettings {
 type cstation struct {
 	st    *Station
 	point [3]float64
+	// on is the station's place on OLD's chainage (OLD's own chainage
+	// for OLD's stations; NEW's plan position projected onto OLD's route)
+	// and off its distance from that route in plan, m.
+	on, off float64
+}
+
+// onRoute projects the plan position p onto the polyline through os (OLD's
+// used stations in chainage order) and returns its place on OLD's
+// chainage and its distance from the line, m. Beyond the ends the first
+// and last segments are extended.
+func onRoute(os []cstation, p [3]float64) (ch, off float64) {
+	if len(os) == 0 {
+		return math.NaN(), math.Inf(1)
+	}
+	if len(os) == 1 {
+		a := os[0]
+		d := a.st.Direction
+		h := math.Hypot(d[0], d[1])
+		if h == 0 {
+			return a.st.Chainage, math.Hypot(p[0]-a.point[0], p[1]-a.point[1])
+		}
+		u := ((p[0]-a.point[0])*d[0] + (p[1]-a.point[1])*d[1]) / h
+		return a.st.Chainage + u, math.Abs((p[0]-a.point[0])*d[1]-(p[1]-a.point[1])*d[0]) / h
+	}
+	ch, off = math.NaN(), math.Inf(1)
+	for i := 1; i < len(os); i++ {
+		a, b := os[i-1], os[i]
+		ex, ny := b.point[0]-a.point[0], b.point[1]-a.point[1]
+		l2 := ex*ex + ny*ny
+		if l2 == 0 {
+			continue
+		}
+		t := ((p[0]-a.point[0])*ex + (p[1]-a.point[1])*ny) / l2
+		if i > 1 {
+			t = math.Max(t, 0)
+		}
+		if i < len(os)-1 {
+			t = math.Min(t, 1)
+		}
+		if d := math.Hypot(p[0]-(a.point[0]+t*ex), p[1]-(a.point[1]+t*ny)); d < off {
+			ch, off = a.st.Chainage+t*(b.st.Chainage-a.st.Chainage), d
+		}
+	}
+	if math.IsNaN(ch) { // every station at one point: the nearest's chainage
+		for _, a := range os {
+			if d := math.Hypot(p[0]-a.point[0], p[1]-a.point[1]); !(d >= off) {
+				ch, off = a.st.Chainage, d
+			}
+		}
+	}
+	return ch, off
 }
 
 // Compare compares NEW (newDoc, read from newName) with OLD. It refuses
@@ -521,20 +603,25 @@ func (c *Comparison) poorNote() {
 
 // nearestStations returns the least separation of a used station of o
 // from one of n (NEW's points taken by toOld), along the route
-// (chainage) and in plan, m.
+// (OLD's chainage, NEW's stations placed on it by plan position) and in
+// plan, m.
 func nearestStations(o, n *Route, toOld func([3]float64) [3]float64) (along, plan float64) {
 	along, plan = math.Inf(1), math.Inf(1)
-	for _, a := range o.Stations {
-		if !a.Used {
-			continue
+	var os []cstation
+	for i := range o.Stations {
+		if o.Stations[i].Used {
+			os = append(os, cstation{st: &o.Stations[i], point: o.Stations[i].Point})
 		}
+	}
+	for _, a := range os {
 		for _, b := range n.Stations {
 			if !b.Used {
 				continue
 			}
 			q := toOld(b.Point)
-			along = math.Min(along, math.Abs(a.Chainage-b.Chainage))
-			plan = math.Min(plan, math.Hypot(a.Point[0]-q[0], a.Point[1]-q[1]))
+			on, _ := onRoute(os, q)
+			along = math.Min(along, math.Abs(a.st.Chainage-on))
+			plan = math.Min(plan, math.Hypot(a.point[0]-q[0], a.point[1]-q[1]))
 		}
 	}
 	return along, plan
@@ -727,15 +814,47 @@ func compareRoute(o, n *Route, toOld func([3]float64) [3]float64, planOnly, dc b
 	var os, ns []cstation
 	for i := range o.Stations {
 		if o.Stations[i].Used {
-			os = append(os, cstation{&o.Stations[i], o.Stations[i].Point})
+			os = append(os, cstation{st: &o.Stations[i], point: o.Stations[i].Point})
 		}
 	}
 	for i := range n.Stations {
 		if n.Stations[i].Used {
-			ns = append(ns, cstation{&n.Stations[i], toOld(n.Stations[i].Point)})
+			ns = append(ns, cstation{st: &n.Stations[i], point: toOld(n.Stations[i].Point)})
 		}
 	}
+	// NEW's stations on OLD's chainage: their plan positions projected
+	// onto OLD's route. Two walks whose chainages start at different
+	// places (a re-walk's first traverse 1 m on) are paired, and their
+	// steps bracketed, on one chainage.
+	for i := range os {
+		os[i].on = os[i].st.Chainage
+	}
+	var cps []chainPair // NEW's own chainage and its place on OLD's, near OLD's route
+	for j := range ns {
+		ns[j].on, ns[j].off = onRoute(os, ns[j].point)
+		if ns[j].off <= s.Tolerance {
+			cps = append(cps, chainPair{ns[j].st.Chainage, ns[j].on})
+		}
+	}
+	sort.Slice(cps, func(a, b int) bool { return cps[a].n < cps[b].n })
+	cc := ConductorComparison{MatchedBy: "plan", Stations: []StationChange{}}
+	chDir, chOff := 1.0, math.NaN()
+	if len(cps) >= 2 {
+		chDir = dirOf(cps)
+		var offs []float64
+		for _, p := range cps {
+			offs = append(offs, p.o-chDir*p.n)
+		}
+		chOff = cmpMedian(offs)
+		cc.NewChainageOffset, cc.NewChainageReversed = ptr(math.Round(chOff*1000)/1000), chDir < 0
+	}
 	plan := func(a, b cstation) float64 { return math.Hypot(a.point[0]-b.point[0], a.point[1]-b.point[1]) }
+	// Distances are matched to the millimetre, so that a re-walk offset
+	// by just the tolerance (half a 4 m spacing, 2 m) pairs every station
+	// alike rather than as its fit's last digits fall; equal distances
+	// keep OLD's order, each of OLD's stations taking NEW's nearest after
+	// it first.
+	mm := func(x float64) float64 { return math.Round(x*1000) / 1000 }
 	match := func(dist func(a, b cstation) float64) [][2]int {
 		type cand struct {
 			i, j int
@@ -762,25 +881,36 @@ func compareRoute(o, n *Route, toOld func([3]float64) [3]float64, planOnly, dc b
 		sort.Slice(out, func(a, b int) bool { return os[out[a][0]].st.Chainage < os[out[b][0]].st.Chainage })
 		return out
 	}
-	cc := ConductorComparison{MatchedBy: "plan", Stations: []StationChange{}}
 	var m [][2]int
-	if !planOnly {
-		m = match(func(a, b cstation) float64 { return math.Abs(a.st.Chainage - b.st.Chainage) })
+	if !planOnly && chDir > 0 && mm(math.Abs(chOff)) <= s.Tolerance {
+		// Both walks measure chainage from about one place: paired along
+		// OLD's chainage, NEW's stations placed on it by plan position.
+		m = match(func(a, b cstation) float64 { return mm(math.Abs(a.on - b.on)) })
 		var sep []float64
 		for _, p := range m {
 			sep = append(sep, plan(os[p[0]], ns[p[1]]))
 		}
-		if len(m) > 0 && cmpMedian(sep) <= s.Tolerance {
+		if len(m) > 0 && mm(cmpMedian(sep)) <= s.Tolerance {
 			cc.MatchedBy = "chainage"
 		} else {
 			m = nil
 		}
 	}
 	if m == nil {
-		m = match(plan)
+		m = match(func(a, b cstation) float64 { return mm(plan(a, b)) })
 		if !planOnly && len(m) > 0 {
 			c.Notes = append(c.Notes, "conductor 1's stations were matched in plan: the two routes' chainages do not start at one place (or no station lies within the tolerance along them)")
 		}
+	}
+	if !planOnly && len(cps) >= 2 && (chDir < 0 || math.Abs(chOff) >= 0.05) {
+		how := fmt.Sprintf("NEW's chainage starts %.2f m along OLD's route (NEW's chainage + %.2f m is OLD's at one place)", chOff, chOff)
+		if chOff < 0 {
+			how = fmt.Sprintf("NEW's chainage starts %.2f m before OLD's (NEW's chainage - %.2f m is OLD's at one place)", -chOff, -chOff)
+		}
+		if chDir < 0 {
+			how = fmt.Sprintf("NEW's chainage runs against OLD's, from OLD's chainage %.2f m (%.2f m - NEW's chainage is OLD's at one place)", chOff, chOff)
+		}
+		c.Notes = append(c.Notes, how+": NEW's stations were placed on OLD's chainage by their plan positions, and every chainage shown is OLD's")
 	}
 	// OLD's current threshold.
 	var mags []float64
@@ -813,7 +943,7 @@ func compareRoute(o, n *Route, toOld func([3]float64) [3]float64, planOnly, dc b
 		matchedO[p[0]], matchedN[p[1]] = true, true
 		sc := StationChange{
 			OldKey: a.st.Key, NewKey: b.st.Key, Chainage: a.st.Chainage, NewChainage: b.st.Chainage,
-			Separation: plan(a, b),
+			NewOnOld: b.on, Separation: plan(a, b),
 			OldCurrent: a.st.Current, OldCurrentSig: a.st.CurrentSigma,
 			NewCurrent: sign * b.st.Current, NewCurrentSig: b.st.CurrentSigma,
 		}
@@ -867,13 +997,16 @@ func compareRoute(o, n *Route, toOld func([3]float64) [3]float64, planOnly, dc b
 		}
 		sc.CurrentFlag = math.Abs(z) > s.Sigmas && math.Abs(d) >= minI
 	}
-	// NEW's chainage to OLD's: linear between matched stations, by the
-	// nearest pair's offset beyond them.
-	var cps []chainPair
-	for _, sc := range cc.Stations {
-		cps = append(cps, chainPair{sc.NewChainage, sc.Chainage})
+	// NEW's chainage to OLD's: linear between NEW's stations placed on
+	// OLD's chainage, by the nearest one's offset beyond them; where fewer
+	// than two lie near OLD's route, between the matched stations.
+	if len(cps) < 2 {
+		cps = nil
+		for _, sc := range cc.Stations {
+			cps = append(cps, chainPair{sc.NewChainage, sc.Chainage})
+		}
+		sort.Slice(cps, func(a, b int) bool { return cps[a].n < cps[b].n })
 	}
-	sort.Slice(cps, func(a, b int) bool { return cps[a].n < cps[b].n })
 	mapCh := func(x float64) float64 {
 		if len(cps) == 0 {
 			return x
@@ -907,7 +1040,10 @@ func compareRoute(o, n *Route, toOld func([3]float64) [3]float64, planOnly, dc b
 			if matchedN[j] {
 				continue
 			}
-			ch := mapCh(x.st.Chainage)
+			ch := x.on
+			if !(x.off <= s.Tolerance) {
+				ch = mapCh(x.st.Chainage)
+			}
 			for i := 1; i < len(os); i++ {
 				a, b := os[i-1].st, os[i].st
 				if !(a.Chainage <= ch && ch <= b.Chainage) || b.Chainage == a.Chainage || b.Chainage-a.Chainage > maxGap {
@@ -916,7 +1052,7 @@ func compareRoute(o, n *Route, toOld func([3]float64) [3]float64, planOnly, dc b
 				w := (ch - a.Chainage) / (b.Chainage - a.Chainage)
 				lerp := func(u, v float64) float64 { return u + w*(v-u) }
 				sc := StationChange{
-					OldKey: a.Key + "-" + b.Key, NewKey: x.st.Key, Chainage: ch, NewChainage: x.st.Chainage,
+					OldKey: a.Key + "-" + b.Key, NewKey: x.st.Key, Chainage: ch, NewChainage: x.st.Chainage, NewOnOld: ch,
 					Separation: math.Min(ch-a.Chainage, b.Chainage-ch), Interpolated: true,
 					OldCurrent: lerp(a.Current, b.Current), OldCurrentSig: lerp(a.CurrentSigma, b.CurrentSigma),
 					NewCurrent: sign * x.st.Current, NewCurrentSig: x.st.CurrentSigma,
@@ -1078,6 +1214,9 @@ func ratioProfile(st []StationChange, medI, minI float64, dc bool, s CompareSett
 	if p.Step != nil && !(p.Step.Z > s.Sigmas && math.Abs(p.Step.CurrentA) >= minI) {
 		p.Step = nil
 	}
+	if p.Step != nil {
+		bracketStep(p.Step, st, idx, r, rs, s.Sigmas)
+	}
 	p.Constant = p.Step == nil
 	p.MedianLevel, p.MedianLevelSigma = p.Level, p.LevelSigma
 	p.LevelFrom = "all"
@@ -1110,7 +1249,7 @@ func ratioProfile(st []StationChange, medI, minI float64, dc bool, s CompareSett
 	}
 	var beforeI, afterI []float64
 	for _, i := range idx {
-		if st[i].Chainage > (stp.ChainageFrom+stp.ChainageTo)/2 {
+		if st[i].Chainage > stp.boundary() {
 			afterI = append(afterI, math.Abs(st[i].OldCurrent))
 		} else {
 			beforeI = append(beforeI, math.Abs(st[i].OldCurrent))
@@ -1134,6 +1273,51 @@ func ratioProfile(st []StationChange, medI, minI float64, dc bool, s CompareSett
 		p.LevelApplied = stp.beforeApplied || stp.afterApplied
 	}
 	return p
+}
+
+// bracketStep sets the chainages of stp, a step of the ratio between the
+// ratio's stations idx[k-1] and idx[k] (its FromKey and ToKey), on OLD's
+// chainage from both walks' stations. A ratio compares NEW's station at
+// one place with OLD's at another (a re-walk's traverses a metre or two
+// from the first survey's), and a loss that changed in either survey
+// moves it once either station is past the loss: so the step lies past
+// the nearer of the two stations of the last pair that reads the level
+// before it and short of the farther of the first pair that reads the
+// level after it. A pair beside the step whose ratio agrees with both
+// levels (within sigmas of each: near a step the fits are poor) does not
+// say which side it is on, and the bracket is widened past it.
+func bracketStep(stp *RatioStep, st []StationChange, idx []int, r, rs []float64, sigmas float64) {
+	k := -1
+	for i := 1; i < len(idx); i++ {
+		if st[idx[i-1]].OldKey == stp.FromKey && st[idx[i]].OldKey == stp.ToKey {
+			k = i
+		}
+	}
+	if k < 0 {
+		return
+	}
+	stp.split, stp.hasSplit = (st[idx[k-1]].Chainage+st[idx[k]].Chainage)/2, true
+	either := func(i int) bool {
+		return math.Abs(r[i]-stp.Before) <= sigmas*math.Hypot(rs[i], stp.BeforeSigma) &&
+			math.Abs(r[i]-stp.After) <= sigmas*math.Hypot(rs[i], stp.AfterSigma)
+	}
+	lo, hi := k-1, k
+	for lo > 0 && either(lo) {
+		lo--
+	}
+	for hi < len(idx)-1 && either(hi) {
+		hi++
+	}
+	a, b := st[idx[lo]], st[idx[hi]]
+	stp.FromKey, stp.ToKey = a.OldKey, b.OldKey
+	stp.ChainageFrom, stp.ChainageTo = a.Chainage, b.Chainage
+	if a.NewOnOld != 0 || b.NewOnOld != 0 {
+		if a.Chainage <= b.Chainage {
+			stp.ChainageFrom, stp.ChainageTo = math.Min(a.Chainage, a.NewOnOld), math.Max(b.Chainage, b.NewOnOld)
+		} else {
+			stp.ChainageFrom, stp.ChainageTo = math.Max(a.Chainage, a.NewOnOld), math.Min(b.Chainage, b.NewOnOld)
+		}
+	}
 }
 
 // stepFinding is a current-step finding's bracket and step.
@@ -1297,7 +1481,7 @@ func (c *Comparison) listChanges() {
 				// restate it.
 				grouped = map[string]bool{}
 				for _, sc := range cc.Stations {
-					past := sc.Chainage > (st.ChainageFrom+st.ChainageTo)/2
+					past := sc.Chainage > st.boundary()
 					if st.Downstream == "before" {
 						past = !past
 					}

@@ -34,10 +34,14 @@ or gone, where the depth of cover changed (erosion, re-grading, a conductor
 re-laid: "now under the minimum cover" where it was not before), and
 whether the current along the route changed overall.
 
-Stations of conductor 1 are matched by chainage when both routes measure
-it from one place (their matched points lie within --tolerance in plan),
-else by their position in plan; further conductors by their offset from
-conductor 1 (within --tolerance) and their azimuth (within 20 degrees).
+NEW's stations are placed on OLD's chainage by projecting their plan
+positions onto OLD's route, and every chainage shown is OLD's; NEW's own
+offset is noted ("NEW's chainage starts 1.00 m along OLD's route").
+Stations of conductor 1 are matched along that chainage when both routes
+measure it from about one place (within --tolerance; their matched points
+within --tolerance in plan), else by their position in plan; further
+conductors by their offset from conductor 1 (within --tolerance) and their
+azimuth (within 20 degrees).
 Conductors without a partner are listed (one of NEW's with its current and
 locate's doubts, such as "not a buried conductor"), stations without one
 noted; NEW's stations between two of OLD's (a closer spacing) are compared
@@ -61,7 +65,9 @@ factor. The ratio NEW/OLD along the route is tested for that: its level and
 the most significant single step in it. When the level differs from 1
 beyond both thresholds the station changes are measured beyond it (NEW -
 level x OLD), so a re-set rectifier is not read as a loss at every station;
-a step in the ratio is a loss that changed there. Without a step the level
+a step in the ratio is a loss that changed there, bracketed on OLD's
+chainage by both walks' stations (widened past a station beside it whose
+ratio fits either side). Without a step the level
 is the weighted mean of the stations that agree with the median ratio; with
 one it is the ratio on the side the current flows from (DC currents are
 signed along increasing chainage), so a fall along the flow is a loss
