@@ -1007,25 +1007,7 @@ func compareRoute(o, n *Route, toOld func([3]float64) [3]float64, planOnly, dc b
 		}
 		sort.Slice(cps, func(a, b int) bool { return cps[a].n < cps[b].n })
 	}
-	mapCh := func(x float64) float64 {
-		if len(cps) == 0 {
-			return x
-		}
-		if len(cps) == 1 || x <= cps[0].n {
-			return cps[0].o + (x-cps[0].n)*dirOf(cps)
-		}
-		for i := 1; i < len(cps); i++ {
-			if x <= cps[i].n {
-				a, b := cps[i-1], cps[i]
-				if b.n == a.n {
-					return a.o
-				}
-				return a.o + (x-a.n)*(b.o-a.o)/(b.n-a.n)
-			}
-		}
-		l := cps[len(cps)-1]
-		return l.o + (x-l.n)*dirOf(cps)
-	}
+	mapCh := chainMap(cps)
 	// NEW's stations without a partner between two of OLD's: compared
 	// with OLD interpolated along its chainage (never beyond its ends).
 	// Not across a gap in OLD (a station left out): at most twice OLD's

@@ -113,14 +113,8 @@ result directories a, b, results and results2):
 			if len(args) != 2 {
 				return usageErrorf("compare takes two results, OLD and NEW (got %d arguments)", len(args))
 			}
-			for _, f := range []struct {
-				name string
-				v    float64
-				pos  bool
-			}{{"--min-current-change", set.MinCurrentChange, false}, {"--min-cover-change", set.MinCoverChange, true}, {"--sigmas", set.Sigmas, true}, {"--tolerance", set.Tolerance, true}} {
-				if f.v < 0 || f.pos && f.v == 0 || f.v != f.v {
-					return usageErrorf("%s %g: must be a positive number", f.name, f.v)
-				}
+			if err := checkCompareSettings(set); err != nil {
+				return err
 			}
 			if out != "" {
 				if err := checkCompareOut(out, args); err != nil {
@@ -183,4 +177,19 @@ func readCompared(path string) (*report.Document, string, error) {
 // .csv or .html name, not an input, replacing only a file compare wrote.
 func checkCompareOut(out string, ins []string) error {
 	return checkComparedOut("compare", out, ins, compareOutHeads)
+}
+
+// checkCompareSettings refuses compare's and trend's thresholds when
+// negative or not a number, and those that must be positive when zero.
+func checkCompareSettings(set report.CompareSettings) error {
+	for _, f := range []struct {
+		name string
+		v    float64
+		pos  bool
+	}{{"--min-current-change", set.MinCurrentChange, false}, {"--min-cover-change", set.MinCoverChange, true}, {"--sigmas", set.Sigmas, true}, {"--tolerance", set.Tolerance, true}} {
+		if f.v < 0 || f.pos && f.v == 0 || f.v != f.v {
+			return usageErrorf("%s %g: must be a positive number", f.name, f.v)
+		}
+	}
+	return nil
 }

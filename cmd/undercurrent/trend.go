@@ -67,14 +67,8 @@ result directories results, results2 and results3):
 			if len(args) < 3 {
 				return usageErrorf("trend takes three or more results, oldest first (got %d arguments); for two, use compare OLD NEW", len(args))
 			}
-			for _, f := range []struct {
-				name string
-				v    float64
-				pos  bool
-			}{{"--min-current-change", set.MinCurrentChange, false}, {"--min-cover-change", set.MinCoverChange, true}, {"--sigmas", set.Sigmas, true}, {"--tolerance", set.Tolerance, true}} {
-				if f.v < 0 || f.pos && f.v == 0 || f.v != f.v {
-					return usageErrorf("%s %g: must be a positive number", f.name, f.v)
-				}
+			if err := checkCompareSettings(set); err != nil {
+				return err
 			}
 			if out != "" {
 				if err := checkComparedOut("trend", out, args, trendOutHeads); err != nil {
