@@ -1,7 +1,6 @@
 package report
 
 import (
-	"bytes"
 	"fmt"
 	"math"
 	"os"
@@ -9,7 +8,6 @@ import (
 	"strings"
 	"testing"
 
-	"undercurrent/inverse"
 	"undercurrent/inverse/simulate"
 )
 
@@ -55,30 +53,7 @@ func rewalkDoc(t *testing.T, text string) *Document {
 	if err != nil {
 		t.Fatal(err)
 	}
-	s, err := simulate.Simulate(sc)
-	if err != nil {
-		t.Fatal(err)
-	}
-	byKey, keys := groupProblems(s)
-	ground := 0.0
-	var fits []Fit
-	for _, k := range keys {
-		p := byKey[k]
-		res, err := inverse.FitLines(p, &inverse.Settings{ReferenceZ: &ground})
-		fits = append(fits, Fit{Key: k, Problem: p, Result: res, Err: err, MeasuredNoise: secondDiffNoise(p.Fields)})
-	}
-	d, err := Build(Document{Signal: Signal{Mode: SignalDC}}, fits, &BuildSettings{})
-	if err != nil {
-		t.Fatal(err)
-	}
-	var b bytes.Buffer
-	if err := WriteJSON(&b, d); err != nil {
-		t.Fatal(err)
-	}
-	back, err := ReadJSON(&b, "results.json")
-	if err != nil {
-		t.Fatal(err)
-	}
+	back := throughJSON(t, simulatedDoc(t, sc))
 	return back
 }
 

@@ -11,7 +11,6 @@ import (
 	"strings"
 	"testing"
 
-	"undercurrent/inverse"
 	"undercurrent/inverse/simulate"
 )
 
@@ -31,23 +30,14 @@ func kestrelDoc(t *testing.T, seed int64, edit func(*simulate.Scenario)) (*Docum
 	if edit != nil {
 		edit(sc)
 	}
-	s, err := simulate.Simulate(sc)
-	if err != nil {
-		t.Fatal(err)
-	}
-	byKey, keys := groupProblems(s)
-	ground := 0.0
-	var fits []Fit
-	for _, k := range keys {
-		p := byKey[k]
-		res, err := inverse.FitLines(p, &inverse.Settings{ReferenceZ: &ground})
-		fits = append(fits, Fit{Key: k, Problem: p, Result: res, Err: err, MeasuredNoise: secondDiffNoise(p.Fields)})
-	}
-	d, err := Build(Document{Signal: Signal{Mode: SignalDC}}, fits, &BuildSettings{})
-	if err != nil {
-		t.Fatal(err)
-	}
-	// Through results.json and back, as compare reads it.
+	back := throughJSON(t, simulatedDoc(t, sc))
+	return back, sc
+}
+
+// throughJSON returns d written as results.json and read back, as
+// compare reads it.
+func throughJSON(t *testing.T, d *Document) *Document {
+	t.Helper()
 	var b bytes.Buffer
 	if err := WriteJSON(&b, d); err != nil {
 		t.Fatal(err)
@@ -56,7 +46,7 @@ func kestrelDoc(t *testing.T, seed int64, edit func(*simulate.Scenario)) (*Docum
 	if err != nil {
 		t.Fatal(err)
 	}
-	return back, sc
+	return back
 }
 
 // scaleCurrents multiplies every current of sc by f (a rectifier set

@@ -80,21 +80,9 @@ func TestFindingIDsJoinFiles(t *testing.T) {
 		t.Errorf("findings.csv id %q, want %q", fromCSV, want)
 	}
 
-	var gj bytes.Buffer
-	if err := WriteGeoJSON(&gj, d); err != nil {
-		t.Fatal(err)
-	}
-	var geo struct {
-		Features []struct {
-			ID         string         `json:"id"`
-			Properties map[string]any `json:"properties"`
-		} `json:"features"`
-	}
-	if err := json.Unmarshal(gj.Bytes(), &geo); err != nil {
-		t.Fatal(err)
-	}
+	features := geoFeatures(t, d)
 	var fromGeo []string
-	for _, f := range geo.Features {
+	for _, f := range features {
 		if f.Properties["feature"] == "finding" {
 			fromGeo = append(fromGeo, f.ID)
 		}

@@ -131,21 +131,9 @@ func TestFindingValueKeysCover(t *testing.T) {
 		for _, r := range rows[1:] {
 			byID[r[col["id"]]] = r
 		}
-		var gj bytes.Buffer
-		if err := WriteGeoJSON(&gj, d); err != nil {
-			t.Fatal(err)
-		}
-		var geo struct {
-			Features []struct {
-				ID         string         `json:"id"`
-				Properties map[string]any `json:"properties"`
-			} `json:"features"`
-		}
-		if err := json.Unmarshal(gj.Bytes(), &geo); err != nil {
-			t.Fatal(err)
-		}
+		features := geoFeatures(t, d)
 		props := map[string]map[string]any{}
-		for _, f := range geo.Features {
+		for _, f := range features {
 			props[f.ID] = f.Properties
 		}
 		for _, f := range doc.Findings {
