@@ -109,6 +109,10 @@ type Fit struct {
 	// the refitted conductors and the object).
 	lineObject *route.Object
 	objectLine int
+	// weakTested is the Result whose weak further lines checkLoneDipoles
+	// tested for a magnetised object in their place (lonedipole.go); a
+	// line it kept is then not one (addLoneCover).
+	weakTested *inverse.Result
 	// partner is the index into Result.Opposed of the strongest line's
 	// partner core when partnerChosen (choosePartners), -1 for none;
 	// partnerOdd, when not empty, says that it lies at a spacing unlike
@@ -447,6 +451,17 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 		// object beside it (dipole.go): refit those groups and follow the
 		// conductors again.
 		if checkTrackDipoles(fits, r, tracks, bs.Progress) {
+			if r, err = analyse(); err != nil {
+				return nil, err
+			}
+			if tracks, err = buildTracks(fits, r, rs, bs.TrackMinStations, pairRoute, ac); err != nil {
+				return nil, err
+			}
+		}
+		// A weak further line off the conductor that no track follows
+		// may be a magnetised object's field (lonedipole.go): test it,
+		// and follow the conductors again when an object is kept.
+		if checkLoneDipoles(fits, r, tracks) {
 			if r, err = analyse(); err != nil {
 				return nil, err
 			}
