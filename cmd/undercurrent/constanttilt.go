@@ -283,11 +283,13 @@ func measureTilt(g *group, set *inverse.Settings, noise float64) (*groupTilt, *i
 	}
 	rot := rotation([3]float64{})
 	res, fields := r, g.fields
+	var proj *projection // the projected columns at res, when computed
 	for round := range tiltRounds {
-		left, _, ok := projectedColumns(g, set, noise, fields, res)
+		left, moved, ok := projectedColumns(g, set, noise, fields, res)
 		if !ok {
 			return nil, nil, nil
 		}
+		proj = &projection{left, moved}
 		// The first step from the untilted fit, whose lines took up
 		// part of the tilt (a made-up line among them), goes along the
 		// best measured direction only: the others may seem measured
@@ -300,6 +302,10 @@ func measureTilt(g *group, set *inverse.Settings, noise float64) (*groupTilt, *i
 		if !ok || (round == 0 && !(gain > tiltFirstGain*rss0)) {
 			return nil, nil, nil
 		}
+		if round > 0 && gain < 0.01*sm*sm {
+			break // a step of under a tenth of its sigma: converged
+		}
+		proj = nil
 		rot = mulMat(rot, rotation(d))
 		fields = make([][3]float64, n)
 		for i, b := range g.fields {
@@ -311,16 +317,13 @@ func measureTilt(g *group, set *inverse.Settings, noise float64) (*groupTilt, *i
 		if res, err = inverse.FitLines(q.problem(false, noise), set); err != nil || len(res.Residuals) != n || conductorField(res, n) == nil {
 			return nil, nil, nil
 		}
-		if norm(d) < 1e-7 {
-			break
-		}
 	}
 	rssT, mT := sumSquares(res.Residuals)
 	if !(rssT*tiltMinFall < rss0) || !(rssT < tiltKeepNoise*tiltKeepNoise*sm*sm*float64(mT)) {
 		return nil, nil, nil
 	}
 	t := &groupTilt{theta: rotationVector(rot), rms0: math.Sqrt(rss0 / float64(m)), rms1: math.Sqrt(rssT / float64(mT)), orig: g.fields, fitted: r}
-	if !widenForTilt(g, set, noise, fields, res, t) {
+	if !widenForTilt(g, set, noise, fields, res, t, proj) {
 		return nil, nil, nil
 	}
 	if !(form(t.info, t.theta) >= tiltMinSigmas*tiltMinSigmas) {
@@ -477,6 +480,12 @@ func projectedColumns(g *group, set *inverse.Settings, noise float64, fields [][
 	return left, moved, true
 }
 
+// projection holds projectedColumns' columns and refits.
+type projection struct {
+	left  [3][][3]float64
+	moved [3]*inverse.Result
+}
+
 // widenForTilt sets t.cov, the tilt's covariance in the joint fit of the
 // lines, background and tilt, and widens res's sigmas by it: the
 // projected columns r_k (projectedColumns) are the information the tilt
@@ -484,15 +493,20 @@ func projectedColumns(g *group, set *inverse.Settings, noise float64, fields [][
 // joint normal matrix), and the change of each fitted quantity per
 // radian s_k in those refits widens its variance by sᵀ C s, as in the
 // joint fit (the fit of the turned-back readings and the tilt's estimate
-// are uncorrelated, one in the model's span, the other out of it).
-func widenForTilt(g *group, set *inverse.Settings, noise float64, fields [][3]float64, res *inverse.Result, t *groupTilt) bool {
+// are uncorrelated, one in the model's span, the other out of it). proj,
+// when not nil, holds projectedColumns at res already.
+func widenForTilt(g *group, set *inverse.Settings, noise float64, fields [][3]float64, res *inverse.Result, t *groupTilt, proj *projection) bool {
 	if !(res.Sigma > 0) {
 		return false
 	}
-	left, moved, ok := projectedColumns(g, set, noise, fields, res)
-	if !ok {
-		return false
+	if proj == nil {
+		left, moved, ok := projectedColumns(g, set, noise, fields, res)
+		if !ok {
+			return false
+		}
+		proj = &projection{left, moved}
 	}
+	left, moved := proj.left, proj.moved
 	an, _ := normalOf(left, res.Residuals)
 	info, cov, rank := measuredInfo(an, res.Sigma, tiltSpread)
 	if rank == 0 {
