@@ -901,6 +901,9 @@ type group struct {
 	// memo keeps the sensor tracks and DC measured noise of the readings
 	// (groupMemo); nil computes them at every call.
 	memo *groupMemo
+	// tilt is (DC) the constant sensor tilt measured in the fit and taken
+	// out of fields (constanttilt.go); nil for none.
+	tilt *groupTilt
 }
 
 // ownSigmas reports whether any group's readings carry their own
@@ -2826,6 +2829,8 @@ feed:
 		for _, g := range sv.groups {
 			looseTurnBound(g)
 		}
+		// A constant unlogged tilt over a strong conductor (constanttilt.go).
+		mendConstantTilt(sv, set, func(g *group) float64 { return sv.groupNoise(g, o.noise) })
 		widenForBaseNoise(sv, o.workers)
 		mendStampJitter(sv)
 	}
@@ -2878,6 +2883,9 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 	}
 	head.Warnings = append(head.Warnings, leadWarnings(alerts, warnings)...)
 	if w := travelWarning(sv); w != "" {
+		head.Warnings = append(head.Warnings, w)
+	}
+	if w := tiltWarning(sv); w != "" {
 		head.Warnings = append(head.Warnings, w)
 	}
 	if w := driftWarning(o, sv); w != "" {
