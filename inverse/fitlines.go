@@ -440,6 +440,9 @@ func (f *fitter) run() (*Result, error) {
 	acceptedFit := map[int]*candidate{}
 	// unresolved notes a count that stopped short of the noise (UnresolvedLinesNote).
 	var unresolved string
+	// atMax notes a count refused at the maximum that below it would have
+	// sent the count on to more lines (MoreLinesNote).
+	var atMax string
 	// beforeAngles is the fit accepted when a count was passed over for angles the
 	// traverse does not determine: a later count is kept only if it fits to the
 	// noise, else this one stands.
@@ -470,6 +473,18 @@ func (f *fitter) run() (*Result, error) {
 				c.keptFrom, c.keptFromScore = best, bestScore
 			} else if why != "" {
 				sc.Rejected, weak = why, w
+				if k == s.MaxCount && !s.FirmMaxCount && bestScore-crit > pairGain && (collapsed(c.sp, c.x) || strings.HasPrefix(why, anglesUndetermined) && best != nil && !f.atNoise(best.sp, best.rss)) {
+					// Below the maximum the count would go on from here
+					// (see below): the readings ask for more lines than it
+					// allows. Six DC lines 2 m apart under 16 m traverses
+					// were fitted with three, 100 times the noise; with
+					// six they fit to the noise and within their sigmas.
+					atMax = fmt.Sprintf("%s: the count stopped at %d %s, since %d lines, the maximum, fit the readings better (information criterion lower by %.3g, more than the %g that chose each line) but %s, where a higher maximum fits more lines: the lines reported take up the field of conductors left out, so their currents and depths may be off by far more than their sigmas; raise the most lines a fit may choose (--max-count) to fit more",
+						MoreLinesNote, len(best.sp.geom), map[bool]string{true: "line", false: "lines"}[len(best.sp.geom) == 1], k, bestScore-crit, pairGain, why)
+					if collapsed(c.sp, c.x) {
+						atMax = strings.Replace(atMax, " but "+why, " but two of them collapsed onto one another (a line dipole, standing for more lines)", 1)
+					}
+				}
 				if k < s.MaxCount && collapsed(c.sp, c.x) {
 					sc.Rejected, guarded = collapsedNote+" ("+why+")", true
 				} else if k < s.MaxCount && strings.HasPrefix(why, anglesUndetermined) && best != nil && !f.atNoise(best.sp, best.rss) {
@@ -643,7 +658,67 @@ func (f *fitter) run() (*Result, error) {
 		n := len(best.sp.geom)
 		res.Notes = append(res.Notes, fmt.Sprintf("%s %d %s reported by more than their noise", unresolved, n, map[bool]string{true: "line", false: "lines"}[n == 1]))
 	}
+	switch {
+	case err != nil || s.FirmMaxCount || ramp != nil || best == nil || best.keptFrom != nil:
+	case atMax != "" && len(best.sp.geom) < s.MaxCount:
+		res.Notes = append(res.Notes, atMax)
+	case len(best.sp.geom) == s.MaxCount && acceptedFit[s.MaxCount] == best:
+		if n := f.moreLines(best, bestScore); n != "" {
+			res.Notes = append(res.Notes, n)
+		}
+	}
 	return res, err
+}
+
+// MoreLinesNote begins the note (Result.Notes) of an automatic count that
+// stopped at its maximum (Settings.MaxCount) while one line more still
+// lowers the criterion by more than pairGain and passes the guard that
+// chose the count: more conductors lie in the readings than the fit holds,
+// and the lines reported take up the field of those left out, their
+// currents and depths biased far beyond their sigmas, although the fit may
+// meet the noise. In review, six DC lines in an 8 m traverse window fitted
+// at four met the noise (2.02 nT RMS for 2 nT) with a -8 A feeder read
+// -5.16 +/- 0.26 A (11 sigma) and a 2 A service 2.355 +/- 0.023 A (15
+// sigma); the last line had lowered the criterion by 760, and the fifth
+// lowers it by hundreds more. At exactly four lines (the AC fits of the
+// same street away from its crossing, within 2 sigma) the fifth is refused.
+const MoreLinesNote = "more conductors than the fit holds"
+
+// moreLines fits one line more than best, the fit the automatic count chose
+// at its maximum (criterion crit), and returns MoreLinesNote, worded with
+// the fall in the criterion, when that count would have been accepted had
+// the maximum allowed it: its criterion lower by more than pairGain and
+// the guard passing it. "" otherwise, or when the fit fails.
+func (f *fitter) moreLines(best *candidate, crit float64) string {
+	k := len(best.sp.geom) + 1
+	c, err := f.fitK(k, best)
+	if err != nil {
+		return ""
+	}
+	sc := f.score(c)
+	next := sc.BIC
+	if f.set.Criterion == AIC {
+		next = sc.AIC
+	}
+	gain := crit - next
+	if !(gain > pairGain) {
+		return ""
+	}
+	// As the count does below its maximum: a count the guard accepts is
+	// taken, and one refused for a current the readings do not resolve, or
+	// for angles the traverse does not determine, still tells of more
+	// conductors while the fit chosen misses the noise (UnresolvedLinesNote,
+	// and the counts tried past undetermined angles).
+	why, weak := f.guard(c, gain)
+	if why != "" && (f.atNoise(best.sp, best.rss) || weak < 0 && !strings.HasPrefix(why, anglesUndetermined)) {
+		return ""
+	}
+	held := "and the fit accepts every line"
+	if why != "" {
+		held = fmt.Sprintf("while the fit of %d misses the noise (%d lines are not all resolved: %s)", k-1, k, why)
+	}
+	return fmt.Sprintf("%s: the count stopped at its maximum of %d lines, but %d lines fit the readings better still (information criterion lower by %.3g, more than the %g that chose each line) %s: the lines reported take up the field of conductors left out, so their currents and depths may be off by far more than their sigmas; raise the most lines a fit may choose (--max-count) to fit more",
+		MoreLinesNote, k-1, k, gain, pairGain, held)
 }
 
 // UnsupportedCountNote begins the note (Result.Notes) of a fit of the number of lines

@@ -231,8 +231,13 @@ type Settings struct {
 	// Count is the number of lines to fit (at most 8); 0 chooses 1..MaxCount by
 	// Criterion.
 	Count int
-	// MaxCount bounds the automatic choice; 0 means 4.
+	// MaxCount bounds the automatic choice; 0 means 4. A choice that stops
+	// at it is fitted with one line more, and noted (MoreLinesNote) when the
+	// count would have gone on.
 	MaxCount int
+	// FirmMaxCount leaves out that fit of one line more: a refit of lines
+	// already found, bounded by their number on purpose.
+	FirmMaxCount bool
 	// Criterion for the automatic choice; the zero value is BIC.
 	Criterion Criterion
 	// ReferenceZ, when set, is the height (m, up) below which depths are reported, for

@@ -490,6 +490,7 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 		}
 	}
 	markPoorGroups(d.Groups, r)
+	moreConductorsFindings(d.Groups, fits, r)
 	if d.DepthReference.Kind == DepthBelowSensors {
 		d.DepthReference.PerGroup = perGroupReference(fits)
 	}

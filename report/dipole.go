@@ -1611,7 +1611,7 @@ func searchFrom(f *Fit, from []*inverse.SourceEstimate, at *[3]float64) *dipoleS
 	// Refit the conductors without the object's field and place the
 	// object again with them held, until it moves less than 1 mm
 	// (dipoleRounds at most): block coordinate descent on the joint fit.
-	fs.Count, fs.MaxCount, fs.Dipoles = 0, len(lines), 0
+	fs.Count, fs.MaxCount, fs.Dipoles, fs.FirmMaxCount = 0, len(lines), 0, true
 	var lr *inverse.Result
 	var rss float64
 	// refit refits the conductors on the readings without the object's

@@ -247,7 +247,7 @@ func refitWithout(f *Fit, lines int, kept ...*dipoleSearch) (*inverse.Result, bo
 	if f.Settings != nil {
 		fs = *f.Settings
 	}
-	fs.Count, fs.MaxCount, fs.Dipoles = 0, lines, 0
+	fs.Count, fs.MaxCount, fs.Dipoles, fs.FirmMaxCount = 0, lines, 0, true
 	lr, err := inverse.FitLines(q, &fs)
 	if err != nil || len(lr.Sources) == 0 || !(lr.Status.Converged() || lr.Status == inverse.Stalled) {
 		return nil, false

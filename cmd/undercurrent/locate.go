@@ -128,6 +128,8 @@ type locateOptions struct {
 
 	// set by check
 	nCount int // 0 = auto
+	// maxCount bounds the automatic count (--max-count; 0: the fit's own 4).
+	maxCount int
 	// extra names allowed in an existing output directory (the demo's log)
 	keepNames []string
 	// given lists the flags the user set, for the document's settings
@@ -175,6 +177,7 @@ func (o *locateOptions) setFlags(fs *pflag.FlagSet) {
 	fs.StringVar(&o.dcMainsText, "dc-mains", "auto", "for a DC run (no --freq), average the readings over whole cycles of the mains at `HZ` (50 or 60) before the fits, so that a live mains cable's field, alternating too fast for the walk, cancels with its harmonics: the log needs several readings per cycle (100 Hz or more at 50 Hz); auto does it when the readings' strongest alternating field is at 50 or 60 Hz or a harmonic of them (a rectifier's ripple on the direct current: 100, 120, 300 Hz), off never")
 	o.coil.add(fs)
 	fs.StringVar(&o.count, "count", "auto", "number of line conductors per fit, `N` (1-4) or auto")
+	fs.IntVar(&o.maxCount, "max-count", 4, "with --count auto, the most line conductors a fit may choose, `N` (1-8); where a fit stops at it and one line more still fits better, the group is noted (\"more conductors than the fit holds\"), not called sound, and named in one caution: raise N then (fitting takes longer: from 4 to 6, a quarter longer on the demo, which never needs 4, and twice as long over six close DC lines)")
 	fs.StringVar(&o.groupBy, "group-by", "", "fit each value of column `COL` separately (a traverse, a sensor, a time window) and build the along-route profile from the groups")
 	fs.StringVar(&o.alongText, "along-window", "auto", "without --group-by, cut readings walked along their length (a cart of several sensors side by side, or a zig-zag, along a conductor) into consecutive windows of `M` metres along the walk and fit each as a station of the route; auto does it when one fit of every reading misses them (the length then chosen from the swath's width), off never")
 	fs.BoolVar(&o.json, "json", false, "print the result document (JSON) on stdout")
@@ -219,6 +222,12 @@ func (o *locateOptions) check(fs *pflag.FlagSet) error {
 			return usageErrorf("--count %q: want 1, 2, 3, 4 or auto", o.count)
 		}
 		o.nCount = n
+	}
+	if o.maxCount < 0 || o.maxCount > 8 || fs != nil && fs.Changed("max-count") && o.maxCount < 1 {
+		return usageErrorf("--max-count %d: want 1 to 8", o.maxCount)
+	}
+	if fs != nil && fs.Changed("max-count") && o.nCount > 0 {
+		return usageErrorf("--max-count bounds the automatic count: not with --count %d", o.nCount)
 	}
 	if fs != nil && fs.Lookup("base") != nil {
 		// The flag set binds o.bases anew for each run; o.base follows.
@@ -2756,7 +2765,7 @@ func medianOf(v []float64) float64 {
 
 // fitSettings are the inverse settings of the options.
 func (o *locateOptions) fitSettings() *inverse.Settings {
-	set := &inverse.Settings{Count: o.nCount, Robust: o.robust, PositionSigmaPlan: o.posPlan, PositionSigmaUp: o.posUp}
+	set := &inverse.Settings{Count: o.nCount, MaxCount: o.maxCount, Robust: o.robust, PositionSigmaPlan: o.posPlan, PositionSigmaUp: o.posUp}
 	if o.hasRefZ {
 		z := o.referenceZ
 		set.ReferenceZ = &z
