@@ -253,6 +253,10 @@ type demodPlan struct {
 	// leftOut holds the times of the readings that follow rows left out
 	// as clipped (demodulateACLeftOut); nil for none.
 	leftOut []float64
+	// extra holds the frequencies, Hz, of tones found beside the signal
+	// that are not the mains (secondTone), fitted beside it in every
+	// window that can tell them apart from it.
+	extra []float64
 }
 
 // signalHz shows the signal's frequency freq as pl's warnings do: as
@@ -286,6 +290,21 @@ func (pl demodPlan) settings(freq, win float64, h []int) *calibrate.DemodSetting
 	}
 	if pl.fs > 0 && len(pl.mains) > 0 {
 		set.Nuisance = calibrate.MainsNuisance(freq, win, pl.fs, pl.mains, h)
+	}
+	for _, f := range pl.extra {
+		// Only where the window fits it apart from the signal and its
+		// harmonics (calibrate.NuisanceSeparation) and from the mains
+		// lines taken (1/win, as MainsNuisance).
+		ok := math.Abs(f-freq) >= calibrate.NuisanceSeparation(win) && (pl.fs == 0 || f < 0.45*pl.fs)
+		for _, k := range h {
+			ok = ok && math.Abs(f-float64(k)*freq) >= calibrate.NuisanceSeparation(win)
+		}
+		for _, n := range set.Nuisance {
+			ok = ok && math.Abs(f-n) >= 1/win
+		}
+		if ok {
+			set.Nuisance = append(set.Nuisance, f)
+		}
 	}
 	return set
 }
@@ -962,6 +981,9 @@ func demodulateACLeftOut(o *locateOptions, s *ingest.Samples, leftOut []float64)
 		}
 		return nil, 0, nil, freqHints{}, err
 	}
+	// A second tone beside the signal, not the mains (secondtone.go),
+	// looked for before the frequency check, which fits it (below).
+	tone, hasTone := pl.findSecondTone(s, res, o.freq, win)
 	if dropped != "" {
 		res.Warnings = append([]string{dropped}, res.Warnings...)
 	}
@@ -986,21 +1008,45 @@ func demodulateACLeftOut(o *locateOptions, s *ingest.Samples, leftOut []float64)
 	// as the sensor walks); fitted alongside with their slope columns, as
 	// in the demodulation at --freq (signalHarmonics), they do not enter
 	// the frequency step.
+	check := func(p demodPlan, cw float64) (*calibrate.DemodResult, error) {
+		return p.freqCheck(s, o.freq, cw, int(math.Round(float64(len(res.Windows))*win/cw)), harm)
+	}
 	var fit *calibrate.DemodResult
-	for _, h := range [][]int{harm, nil} {
-		set := pl.settings(o.freq, win, h)
-		set.EstimateFreq = true
-		// A window whose frequency fit fails (diverges, or its frequency
-		// column is degenerate, as where the field runs far from --freq)
-		// is left out and the rest judged: before, one such window gave up
-		// the check for the whole log, and --freq 60 on a 50 Hz site went through unchecked with
-		// the default window (found in review).
-		set.SkipFailedFreq = true
-		set.Step = checkStep(len(res.Windows), win)
-		fit, err = calibrate.Demodulate(s, set)
-		if err == nil {
-			break
+	var toneWarn string
+	if hasTone {
+		// The check with the tone fitted beside the signal at its own
+		// frequency, in windows long enough to fit the two apart: the two
+		// frequencies are then fitted apart, the signal's in the windows,
+		// the tone's in the probe.
+		cw := toneWindow(math.Abs(tone.freq-o.freq), win)
+		pt := pl.withTone(tone.freq)
+		fit, err = check(pt, cw)
+		_, seen := estimateWindowFreq(fitWindows(fit), cw)
+		switch {
+		case (err != nil || !seen) && tone.share >= 1:
+			// Nothing clear at --freq once the line is fitted, and the
+			// line is the stronger: it may be the signal itself, off
+			// --freq, which the check without it finds (as before).
+			hasTone = false
+		case err != nil || len(fit.Windows) == 0:
+			// No window of the log's runs fits the tone apart: the pulled
+			// estimate is not to be acted on.
+			return res, win, append(res.Warnings, secondToneWarning(tone, o.freq, win, 0, false)), freqHints{}, nil
+		default:
+			fitted := false
+			if cw == win {
+				// The demodulation's windows fit it apart too.
+				if r2, err2 := pt.demodulate(s, o.freq, win, harm); err2 == nil && len(r2.Windows) == len(res.Windows) {
+					r2.Warnings = res.Warnings
+					res, pl, fitted = r2, pt, true
+				}
+			}
+			toneWarn = secondToneWarning(tone, o.freq, win, cw, fitted)
+			res.Warnings = append(res.Warnings, toneWarn)
 		}
+	}
+	if !hasTone {
+		fit, err = check(pl, win)
 	}
 	if err != nil {
 		// The fixed-frequency demodulation went through; a failed check is
@@ -1136,6 +1182,7 @@ func demodulateACLeftOut(o *locateOptions, s *ingest.Samples, leftOut []float64)
 		again.Warnings = append([]string{w}, again.Warnings...)
 	}
 	again.Warnings = appendNonEmpty(again.Warnings, failedShare)
+	again.Warnings = appendNonEmpty(again.Warnings, toneWarn)
 	warn := fmt.Sprintf("AC frequency estimated at %.*f ± %.*f Hz from %d windows, not the %g Hz given (at %g Hz the phase would turn %.0f° across the longest group, %.1f s, and the currents would read low); demodulated at %.*f Hz in %.4g s windows; the estimate's own uncertainty turns the phase by 360·σ·t, so phases compare between the conductors of a group, not between groups",
 		dec, est.freq, dec, est.sigma, est.windows, o.freq, o.freq, turn, span, dec, est.freq, win2)
 	return again, win2, append([]string{warn}, again.Warnings...), freqHints{groups: wanderHints(fit.Windows, est.freq, win2), bound: rampEstimateSigmas * est.sigma, estSigma: est.sigma}, nil
@@ -1279,6 +1326,36 @@ func wanderHints(fitted []calibrate.Window, freq, window float64) map[string]flo
 	return bad
 }
 
+// freqCheck demodulates s at freq in windows of win seconds (about n of
+// them in the log) with the frequency fitted in each, the signal's
+// harmonics h fitted alongside, or, should that fail, none of them.
+func (pl demodPlan) freqCheck(s *ingest.Samples, freq, win float64, n int, h []int) (fit *calibrate.DemodResult, err error) {
+	for _, hh := range [][]int{h, nil} {
+		set := pl.settings(freq, win, hh)
+		set.EstimateFreq = true
+		// A window whose frequency fit fails (diverges, or its frequency
+		// column is degenerate, as where the field runs far from --freq)
+		// is left out and the rest judged: before, one such window gave up
+		// the check for the whole log, and --freq 60 on a 50 Hz site went through unchecked with
+		// the default window (found in review).
+		set.SkipFailedFreq = true
+		set.Step = checkStep(n, win)
+		fit, err = calibrate.Demodulate(s, set)
+		if err == nil {
+			break
+		}
+	}
+	return fit, err
+}
+
+// fitWindows is the windows of fit; none for a nil fit.
+func fitWindows(fit *calibrate.DemodResult) []calibrate.Window {
+	if fit == nil {
+		return nil
+	}
+	return fit.Windows
+}
+
 func appendNonEmpty(list []string, s string) []string {
 	if s == "" {
 		return list
@@ -1352,7 +1429,11 @@ type lineProbe struct {
 // with their linear and quadratic change, and the mains lines fitted
 // beside it (calibrate.MainsNuisance in 0.1 s windows) with their linear
 // change. Nil when there is too little to fit.
-func (pl demodPlan) newLineProbe(s *ingest.Samples, res *calibrate.DemodResult, signal, span, at float64) *lineProbe {
+//
+// extra lists further lines, Hz, fitted in the base as the mains lines
+// are (findSecondTone's mains harmonics too near the signal for
+// MainsNuisance).
+func (pl demodPlan) newLineProbe(s *ingest.Samples, res *calibrate.DemodResult, signal, span, at float64, extra ...float64) *lineProbe {
 	if res == nil || len(res.Windows) == 0 || s.Len() < 64 {
 		return nil
 	}
@@ -1372,6 +1453,11 @@ func (pl demodPlan) newLineProbe(s *ingest.Samples, res *calibrate.DemodResult, 
 	for _, f := range calibrate.MainsNuisance(signal, mainsWindowStep, pl.fs, pl.mains, nil) {
 		// The line asked about is measured, not fitted in the base.
 		if math.Abs(f-at) >= 1 {
+			lp.others = append(lp.others, f)
+		}
+	}
+	for _, f := range extra {
+		if !slices.ContainsFunc(lp.others, func(g float64) bool { return math.Abs(f-g) < 1/span }) {
 			lp.others = append(lp.others, f)
 		}
 	}
