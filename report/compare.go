@@ -126,6 +126,35 @@ type ConductorComparison struct {
 	// of NEW's stations near OLD's route.
 	NewChainageOffset   *float64 `json:"new_chainage_offset_m,omitempty"`
 	NewChainageReversed bool     `json:"new_chainage_reversed,omitempty"`
+	// Partial is set when one survey walked stretches of the conductor
+	// that the other did not (see PartialCoverage).
+	Partial *PartialCoverage `json:"partial_coverage,omitempty"`
+
+	// oldOn and newOn are OLD's and NEW's used stations on OLD's
+	// chainage, sorted: what each survey walked, for the steps' pairing.
+	oldOn, newOn []float64
+}
+
+// PartialCoverage says that the two surveys walked different stretches of
+// one conductor (a re-survey of part of the route): BothFrom-BothTo is
+// the stretch both walked (the matched stations, OLD's chainage) and
+// OldFrom-OldTo and NewFrom-NewTo each survey's used stations on OLD's
+// chainage. A step of current outside the stretch both walked cannot be
+// compared (its status is not-covered-by-new or not-covered-by-old, not
+// gone or new), and a change of loss there moves every current on the
+// stretch by one factor, as a re-set supply does. LevelDoubt words where
+// such a loss would lie for the ratio's level: upstream of the stretch
+// when the DC current's direction is known (a loss downstream of it does
+// not move it), else past either end; empty when that part was walked by
+// neither or by both.
+type PartialCoverage struct {
+	BothFrom   float64 `json:"both_from_m"`
+	BothTo     float64 `json:"both_to_m"`
+	OldFrom    float64 `json:"old_from_m"`
+	OldTo      float64 `json:"old_to_m"`
+	NewFrom    float64 `json:"new_from_m"`
+	NewTo      float64 `json:"new_to_m"`
+	LevelDoubt string  `json:"level_doubt,omitempty"`
 }
 
 // DepthOffset is the change of cover (or depth) that the matched stations
@@ -305,9 +334,12 @@ func (s *RatioStep) boundary() float64 {
 }
 
 // StepComparison compares the current-step findings of both surveys on
-// one conductor (OLD's numbering). Status is new, gone, grown, shrunk or
-// unchanged; steps are signed (a loss is negative), NEW's chainages taken
-// onto OLD's.
+// one conductor (OLD's numbering). Status is new, gone, grown, shrunk,
+// unchanged, not-covered-by-new or not-covered-by-old; steps are signed
+// (a loss is negative), NEW's chainages taken onto OLD's. A step of one
+// survey without a partner is gone (or new) only when the other survey
+// has used stations on both sides of its bracket (within --tolerance);
+// else that survey did not walk there and it is not covered.
 type StepComparison struct {
 	Conductor    int      `json:"conductor"`
 	Status       string   `json:"status"`
@@ -560,6 +592,11 @@ func Compare(old, newDoc *Document, oldName, newName string, s CompareSettings) 
 	}
 	c.poorNote()
 	c.listChanges()
+	for i := range c.Conductors {
+		if c.Conductors[i].Partial != nil {
+			c.Cautions = append(c.Cautions, partialCaution(&c.Conductors[i]))
+		}
+	}
 	return c, nil
 }
 
@@ -1008,6 +1045,21 @@ func compareRoute(o, n *Route, toOld func([3]float64) [3]float64, planOnly, dc b
 		sort.Slice(cps, func(a, b int) bool { return cps[a].n < cps[b].n })
 	}
 	mapCh := chainMap(cps)
+	for _, x := range os {
+		cc.oldOn = append(cc.oldOn, x.on)
+	}
+	for _, x := range ns {
+		on := x.on
+		if !(x.off <= s.Tolerance) || math.IsNaN(on) {
+			on = mapCh(x.st.Chainage)
+		}
+		if !math.IsNaN(on) {
+			cc.newOn = append(cc.newOn, on)
+		}
+	}
+	sort.Float64s(cc.oldOn)
+	sort.Float64s(cc.newOn)
+	cc.Partial = partialCoverage(&cc, flowOf(cc.Stations, dc), s.Tolerance)
 	// NEW's stations without a partner between two of OLD's: compared
 	// with OLD interpolated along its chainage (never beyond its ends).
 	// Not across a gap in OLD (a station left out): at most twice OLD's
@@ -1209,26 +1261,7 @@ func ratioProfile(st []StationChange, medI, minI float64, dc bool, s CompareSett
 	stp := p.Step
 	applied := func(l, ls float64) bool { return math.Abs(l-1) > s.Sigmas*ls && math.Abs(l-1)*medI >= minI }
 	stp.beforeApplied, stp.afterApplied = applied(stp.Before, stp.BeforeSigma), applied(stp.After, stp.AfterSigma)
-	flow := 0
-	if dc {
-		// OLD's DC currents are signed along increasing chainage; the
-		// ratio's stations all have one beyond 3 sigma of zero. A sign
-		// that changes along them leaves the direction unknown.
-		var pos, neg int
-		for _, i := range idx {
-			if st[i].OldCurrent > 0 {
-				pos++
-			} else {
-				neg++
-			}
-		}
-		switch {
-		case neg == 0:
-			flow = 1
-		case pos == 0:
-			flow = -1
-		}
-	}
+	flow := flowOf(st, dc)
 	var beforeI, afterI []float64
 	for _, i := range idx {
 		if st[i].Chainage > stp.boundary() {
@@ -1255,6 +1288,83 @@ func ratioProfile(st []StationChange, medI, minI float64, dc bool, s CompareSett
 		p.LevelApplied = stp.beforeApplied || stp.afterApplied
 	}
 	return p
+}
+
+// flowOf is the direction the current flows along OLD's chainage, +1 or
+// -1, as the stations of the ratio (a ratio, on sound fits) read it; 0
+// when it is not known. OLD's DC currents are signed along increasing
+// chainage, and the ratio's stations all have one beyond 3 sigma of zero;
+// a sign that changes along them, or an AC magnitude, leaves the
+// direction unknown.
+func flowOf(st []StationChange, dc bool) int {
+	if !dc {
+		return 0
+	}
+	var pos, neg int
+	for _, x := range st {
+		if x.Ratio == nil || !(*x.RatioSigma > 0) || x.PoorFit != "" {
+			continue
+		}
+		if x.OldCurrent > 0 {
+			pos++
+		} else {
+			neg++
+		}
+	}
+	switch {
+	case pos+neg == 0:
+		return 0
+	case neg == 0:
+		return 1
+	case pos == 0:
+		return -1
+	}
+	return 0
+}
+
+// partialCoverage returns cc's PartialCoverage (nil when both surveys
+// walked the same stretch, within tol at each end), from its matched
+// stations, oldOn and newOn; flow is flowOf's direction.
+func partialCoverage(cc *ConductorComparison, flow int, tol float64) *PartialCoverage {
+	if len(cc.Stations) == 0 || len(cc.oldOn) == 0 || len(cc.newOn) == 0 {
+		return nil
+	}
+	p := &PartialCoverage{BothFrom: math.Inf(1), BothTo: math.Inf(-1),
+		OldFrom: cc.oldOn[0], OldTo: cc.oldOn[len(cc.oldOn)-1], NewFrom: cc.newOn[0], NewTo: cc.newOn[len(cc.newOn)-1]}
+	for _, sc := range cc.Stations {
+		p.BothFrom, p.BothTo = math.Min(p.BothFrom, sc.Chainage), math.Max(p.BothTo, sc.Chainage)
+	}
+	oldStart, newStart := p.OldFrom < p.BothFrom-tol, p.NewFrom < p.BothFrom-tol
+	oldEnd, newEnd := p.OldTo > p.BothTo+tol, p.NewTo > p.BothTo+tol
+	if !oldStart && !newStart && !oldEnd && !newEnd {
+		return nil
+	}
+	// Where a loss changed outside the stretch both walked would lie,
+	// upstream of it (or past either end when the flow is not known).
+	var where []string
+	switch {
+	case flow >= 0 && oldStart && !newStart:
+		where = append(where, fmt.Sprintf("before NEW's first station at %.1f m", p.NewFrom))
+	case flow >= 0 && newStart && !oldStart:
+		where = append(where, fmt.Sprintf("before OLD's first station at %.1f m", p.OldFrom))
+	}
+	switch {
+	case flow <= 0 && oldEnd && !newEnd:
+		where = append(where, fmt.Sprintf("past NEW's last station at %.1f m", p.NewTo))
+	case flow <= 0 && newEnd && !oldEnd:
+		where = append(where, fmt.Sprintf("past OLD's last station at %.1f m", p.OldTo))
+	}
+	if len(where) > 0 {
+		p.LevelDoubt = "a change of loss " + strings.Join(where, " or ")
+	}
+	return p
+}
+
+// covers reports whether used stations on (sorted) lie on both sides of
+// the bracket from-to, within tol: a station at or before from and
+// another at or after to.
+func covers(on []float64, from, to, tol float64) bool {
+	return len(on) >= 2 && on[0] <= from+tol && on[len(on)-1] >= to-tol && on[0] < on[len(on)-1]
 }
 
 // bracketStep sets the chainages of stp, a step of the ratio between the
@@ -1356,6 +1466,9 @@ func (c *Comparison) compareSteps(old, newDoc *Document, oc, nc, number int, map
 			OldStep: ptr(a.step), OldStepSigma: ptr(a.sg)}
 		if best < 0 {
 			sc.Status = "gone"
+			if !covers(cc.newOn, a.from, a.to, s.Tolerance) {
+				sc.Status = "not-covered-by-new"
+			}
 			c.Steps = append(c.Steps, sc)
 			continue
 		}
@@ -1388,7 +1501,11 @@ func (c *Comparison) compareSteps(old, newDoc *Document, oc, nc, number int, map
 		if usedN[j] {
 			continue
 		}
-		c.Steps = append(c.Steps, StepComparison{Conductor: number, Status: "new", ChainageFrom: b.from, ChainageTo: b.to,
+		status := "new"
+		if !covers(cc.oldOn, b.from, b.to, s.Tolerance) {
+			status = "not-covered-by-old"
+		}
+		c.Steps = append(c.Steps, StepComparison{Conductor: number, Status: status, ChainageFrom: b.from, ChainageTo: b.to,
 			NewGroups: b.groups, NewStep: ptr(b.step), NewStepSigma: ptr(b.sg)})
 	}
 	sort.SliceStable(c.Steps, func(i, j int) bool {
@@ -1419,6 +1536,10 @@ func (c *Comparison) listChanges() {
 		if r != nil && r.LevelApplied {
 			ch := Change{Kind: "level-change", Conductor: cc.Old, Value: ptr(r.Level), Sigma: ptr(r.LevelSigma), Unit: "ratio"}
 			cause := c.levelCause()
+			doubt := ""
+			if cc.Partial != nil {
+				doubt = cc.Partial.LevelDoubt
+			}
 			switch r.LevelFrom {
 			case "upstream":
 				side, from := "before", r.Step.ChainageFrom
@@ -1427,13 +1548,24 @@ func (c *Comparison) listChanges() {
 				}
 				ch.Message = fmt.Sprintf("%sthe supply's current changed by one factor, NEW/OLD %s (%s), read on the side the current flows from, %s chainage %.1f m; past the step in the ratio, along the flow, the stations read %s, that factor less the change of loss at the step: station changes below are beyond the supply's factor",
 					who, pmText(r.Level, r.LevelSigma, 3), cause, side, from, pmText(otherSide(r), otherSideSigma(r), 3))
+				if doubt != "" {
+					ch.Message += "; the factor may also be " + doubt + ""
+				}
 			case "unknown":
 				st := r.Step
 				ch.ValuePast, ch.SigmaPast = ptr(st.After), ptr(st.AfterSigma)
 				ch.Message = fmt.Sprintf("%sthe ratio NEW/OLD reads %s before chainage %.1f m and %s past %.1f m: the supply's factor (%s) is the reading on the side the current is fed from, which an AC magnitude does not tell; neither side is taken as the factor, and each station is measured against its own side's reading",
 					who, pmText(st.Before, st.BeforeSigma, 3), st.ChainageFrom, pmText(st.After, st.AfterSigma, 3), st.ChainageTo, cause)
+				if doubt != "" {
+					ch.Message += "; either reading may also hold " + doubt + ""
+				}
 			default:
 				ch.Message = fmt.Sprintf("%sthe current changed by one factor along the route, NEW/OLD %s (%s): station changes below are beyond that factor", who, pmText(r.Level, r.LevelSigma, 3), cause)
+				if doubt != "" {
+					p := cc.Partial
+					ch.Message = fmt.Sprintf("%sthe current changed by one factor on the stretch both surveys walked (chainage %.1f-%.1f m), NEW/OLD %s: a supply change (%s) or %s; station changes below are beyond that factor",
+						who, p.BothFrom, p.BothTo, pmText(r.Level, r.LevelSigma, 3), cause, doubt)
+				}
 			}
 			c.Changes = append(c.Changes, ch)
 		}
@@ -1500,6 +1632,11 @@ func (c *Comparison) listChanges() {
 		}
 		for _, sp := range c.Steps {
 			if sp.Conductor != cc.Old || sp.Status == "unchanged" {
+				continue
+			}
+			if nc := notCovered(sp, cc.Partial); nc != "" {
+				// Not a change: the other survey did not walk there.
+				c.Notes = append(c.Notes, who+nc)
 				continue
 			}
 			mid := (sp.ChainageFrom + sp.ChainageTo) / 2
@@ -1588,6 +1725,46 @@ func (c *Comparison) listChanges() {
 			}
 		}
 	}
+}
+
+// notCovered words a step of one survey that the other did not walk on
+// both sides of (StepComparison's not-covered statuses); "" for any other
+// status.
+func notCovered(sp StepComparison, p *PartialCoverage) string {
+	span := func(old bool) string {
+		switch {
+		case p == nil:
+			return ""
+		case old:
+			return fmt.Sprintf(" (its used stations lie at %.1f-%.1f m of OLD's chainage)", p.OldFrom, p.OldTo)
+		}
+		return fmt.Sprintf(" (its used stations lie at %.1f-%.1f m of OLD's chainage)", p.NewFrom, p.NewTo)
+	}
+	switch sp.Status {
+	case "not-covered-by-new":
+		return fmt.Sprintf("the change of current %s A at chainage %.1f-%.1f m (OLD %s) is not covered by NEW: NEW has no used station on one side of it%s, so whether it changed is not known",
+			signed(pmText(*sp.OldStep, *sp.OldStepSigma, 3)), sp.ChainageFrom, sp.ChainageTo, strings.Join(sp.OldGroups, "-"), span(false))
+	case "not-covered-by-old":
+		return fmt.Sprintf("the change of current %s A at chainage %.1f-%.1f m (NEW %s) is not covered by OLD: OLD has no used station on one side of it%s, so whether it is new is not known",
+			signed(pmText(*sp.NewStep, *sp.NewStepSigma, 3)), sp.ChainageFrom, sp.ChainageTo, strings.Join(sp.NewGroups, "-"), span(true))
+	}
+	return ""
+}
+
+// partialCaution is the caution a comparison of surveys that walked
+// different stretches of a conductor carries.
+func partialCaution(cc *ConductorComparison) string {
+	p := cc.Partial
+	who := "the route"
+	if cc.Old != 1 {
+		who = fmt.Sprintf("conductor %d", cc.Old)
+	}
+	msg := fmt.Sprintf("The two surveys walked different stretches of %s (OLD %.1f-%.1f m, NEW %.1f-%.1f m, on OLD's chainage) and are compared on %.1f-%.1f m only: a change of current or cover outside that stretch is not seen, and a step of current there is not covered, neither gone nor new.",
+		who, p.OldFrom, p.OldTo, p.NewFrom, p.NewTo, p.BothFrom, p.BothTo)
+	if p.LevelDoubt != "" {
+		msg += fmt.Sprintf(" A ratio NEW/OLD other than 1 there may be %s rather than a changed supply: do not re-set a rectifier or transmitter on it without checking the supply itself.", p.LevelDoubt)
+	}
+	return msg
 }
 
 // levelCause words what changes every current by one factor: for DC a
@@ -1778,9 +1955,9 @@ func WriteComparisonText(w io.Writer, c *Comparison) error {
 			fmt.Fprintf(&b, "%d of NEW's stations lie between OLD's and were compared with OLD interpolated along the route.\n", len(cc.Between))
 		}
 	}
-	fmt.Fprintf(&b, "\nChanges of current (steps): ")
+	b.WriteString("\nChanges of current (steps):")
 	if len(c.Steps) == 0 {
-		b.WriteString("none in either survey.\n")
+		b.WriteString(" none in either survey.\n")
 	} else {
 		b.WriteString("\n")
 		for _, sp := range c.Steps {
@@ -1791,7 +1968,14 @@ func WriteComparisonText(w io.Writer, c *Comparison) error {
 			if sp.NewStep != nil {
 				n = signed(pmText(*sp.NewStep, *sp.NewStepSigma, 3)) + " A"
 			}
-			fmt.Fprintf(&b, "  conductor %d, chainage %.1f-%.1f m: OLD %s, NEW %s: %s\n", sp.Conductor, sp.ChainageFrom, sp.ChainageTo, o, n, sp.Status)
+			status := sp.Status
+			switch sp.Status {
+			case "not-covered-by-new":
+				n, status = "not walked on both sides", "not covered by NEW"
+			case "not-covered-by-old":
+				o, status = "not walked on both sides", "not covered by OLD"
+			}
+			fmt.Fprintf(&b, "  conductor %d, chainage %.1f-%.1f m: OLD %s, NEW %s: %s\n", sp.Conductor, sp.ChainageFrom, sp.ChainageTo, o, n, status)
 		}
 	}
 	if len(c.Changes) == 0 {

@@ -193,6 +193,9 @@ type compareConductorView struct {
 	Current, Cover    template.HTML
 	Rows              []compareRow
 	CoverHead         string
+	// CurHead and CovChangeHead head the change columns (currentHead,
+	// coverHead).
+	CurHead, CovChangeHead string
 }
 
 type compareRow struct {
@@ -202,9 +205,16 @@ type compareRow struct {
 	CurFlag, CovFlag, Shallow bool
 }
 
-// ratioMeaning words a conductor's ratio NEW/OLD for a manager: its value,
-// what a constant ratio and a step mean.
-func ratioMeaning(r *RatioProfile, ac bool) string {
+// ratioMeaning words a conductor's ratio NEW/OLD for a manager as
+// compare's list of changes does: without a step its level (the stations
+// that agree with the median ratio); with a step on DC the supply's factor
+// read on the side the current flows from (LevelFrom "upstream"); with a
+// step whose feed end is not known (AC) both sides' readings, neither
+// taken as the factor (LevelFrom "unknown"); and, when the surveys walked
+// different stretches, that the level may be a loss outside the stretch
+// both walked (PartialCoverage.LevelDoubt).
+func ratioMeaning(cc *ConductorComparison, ac bool) string {
+	r := cc.Ratio
 	if r == nil {
 		return "Too few stations with a current clear of zero in both surveys to test the ratio NEW/OLD."
 	}
@@ -212,22 +222,79 @@ func ratioMeaning(r *RatioProfile, ac bool) string {
 	if ac {
 		supply = "the load or the transmitter driving it changed"
 	}
-	var b strings.Builder
-	fmt.Fprintf(&b, "The current now is %s times what it was (NEW/OLD, weighted over the %d stations that agree with the median ratio", pm(r.Level, r.LevelSigma), r.Stations)
-	fmt.Fprintf(&b, "; chi-square %.1f for %d degrees of freedom). ", r.Chi2, r.Dof)
-	if r.LevelApplied {
-		fmt.Fprintf(&b, "That differs from 1 beyond both thresholds: the whole route's current changed by one factor, which means %s, not a loss; the changes at stations are measured beyond that factor (NEW − %.4g × OLD). ", supply, r.Level)
-	} else {
-		b.WriteString("That is 1 within the thresholds: the current feeding the route did not change. ")
+	doubt := ""
+	if cc.Partial != nil {
+		doubt = cc.Partial.LevelDoubt
 	}
-	if r.Step != nil {
+	fit := fmt.Sprintf("chi-square %.1f for %d degrees of freedom over the %d stations with a current clear of zero in both surveys", r.Chi2, r.Dof, r.Stations)
+	var b strings.Builder
+	switch r.LevelFrom {
+	case "upstream":
 		st := r.Step
-		fmt.Fprintf(&b, "The ratio steps from %s to %s between %s and %s (chainage %.1f–%.1f m, %.1f σ, about %+.3g A): current leaves (or joins) the conductor there now as it did not before, a loss that changed.",
-			pm(st.Before, st.BeforeSigma), pm(st.After, st.AfterSigma), st.FromKey, st.ToKey, st.ChainageFrom, st.ChainageTo, st.Z, st.CurrentA)
-	} else {
-		b.WriteString("It holds along the route (no step beyond the thresholds): no loss changed.")
+		side, from := "before", st.ChainageFrom
+		if st.Downstream == "before" {
+			side, from = "past", st.ChainageTo
+		}
+		fmt.Fprintf(&b, "The ratio NEW/OLD steps from %s to %s between %s and %s (chainage %.1f–%.1f m, %.1f σ; %s). ",
+			pm(st.Before, st.BeforeSigma), pm(st.After, st.AfterSigma), st.FromKey, st.ToKey, st.ChainageFrom, st.ChainageTo, st.Z, fit)
+		fmt.Fprintf(&b, "The supply's factor is read on the side the current flows from, %s chainage %.1f m: %s. ", side, from, pm(r.Level, r.LevelSigma))
+		if r.LevelApplied {
+			fmt.Fprintf(&b, "That differs from 1 beyond both thresholds: %s; the changes at stations are measured beyond it (NEW − %s × OLD). ", supply, fix(r.Level, 4))
+		} else {
+			b.WriteString("That is 1 within the thresholds: the supply did not change. ")
+		}
+		if doubt != "" {
+			fmt.Fprintf(&b, "It may also be %s, which that survey did not walk. ", doubt)
+		}
+		if st.CurrentAlongFlowA != nil {
+			fmt.Fprintf(&b, "Past the step, along the flow, the stations read %s, that factor less the change of loss: along the flow the current changes there by about %+.3g A more than in OLD, a loss that changed.",
+				pm(otherSide(r), otherSideSigma(r)), *st.CurrentAlongFlowA)
+		}
+	case "unknown":
+		st := r.Step
+		fmt.Fprintf(&b, "The ratio NEW/OLD reads %s before chainage %.1f m and %s past %.1f m (between %s and %s, %.1f σ; %s). ",
+			pm(st.Before, st.BeforeSigma), st.ChainageFrom, pm(st.After, st.AfterSigma), st.ChainageTo, st.FromKey, st.ToKey, st.Z, fit)
+		fmt.Fprintf(&b, "The supply's factor is the reading on the side the current is fed from, which %s does not tell: neither side is taken as the factor, and each station's change is measured against its own side's reading (NEW − that side's ratio × OLD). ",
+			map[bool]string{true: "an AC magnitude", false: "a current of no clear sign"}[ac])
+		if doubt != "" {
+			fmt.Fprintf(&b, "Either reading may also hold %s, which that survey did not walk. ", doubt)
+		}
+		fmt.Fprintf(&b, "The step itself is about %+.3g A if the current is fed from the start of the route (the reverse if from the far end): a loss that changed there.", st.CurrentA)
+	default:
+		fmt.Fprintf(&b, "The current now is %s times what it was (NEW/OLD, the weighted mean of the stations that agree with the median ratio; %s). ", pm(r.Level, r.LevelSigma), fit)
+		switch {
+		case r.LevelApplied && doubt != "":
+			p := cc.Partial
+			fmt.Fprintf(&b, "That differs from 1 beyond both thresholds on the stretch both surveys walked (chainage %.1f–%.1f m): either %s, or it is %s, which that survey did not walk; the changes at stations are measured beyond that factor (NEW − %s × OLD). ", p.BothFrom, p.BothTo, supply, doubt, fix(r.Level, 4))
+		case r.LevelApplied:
+			fmt.Fprintf(&b, "That differs from 1 beyond both thresholds: the whole route's current changed by one factor, which means %s, not a loss; the changes at stations are measured beyond that factor (NEW − %s × OLD). ", supply, fix(r.Level, 4))
+		default:
+			b.WriteString("That is 1 within the thresholds: the current feeding the route did not change. ")
+		}
+		b.WriteString("It holds along the route (no step beyond the thresholds): no loss changed between the stations both surveys walked.")
 	}
 	return b.String()
+}
+
+// currentHead and coverHead are the headings of the station table's
+// change columns: the change beyond the level (or each side's ratio) and
+// beyond the common depth offset where those apply, as compare's text
+// table.
+func currentHead(r *RatioProfile) string {
+	switch {
+	case r != nil && r.SideLevels && r.LevelApplied:
+		return "Change beyond its side's ratio (A)"
+	case r != nil && r.LevelApplied:
+		return fmt.Sprintf("Change beyond level, NEW − %s × OLD (A)", fix(r.Level, 4))
+	}
+	return "Change NEW − OLD (A)"
+}
+
+func coverHead(o *DepthOffset) string {
+	if o != nil && o.Applied {
+		return fmt.Sprintf("Change beyond the common %+.3f m (m)", o.Offset)
+	}
+	return "Change NEW − OLD (m)"
 }
 
 func changeWhere(ch Change) string {
@@ -235,7 +302,10 @@ func changeWhere(ch Change) string {
 	if ch.Conductor > 1 {
 		parts = append(parts, fmt.Sprintf("conductor %d", ch.Conductor))
 	}
-	if ch.Chainage != nil {
+	switch {
+	case ch.ChainageFrom != nil && ch.ChainageTo != nil:
+		parts = append(parts, fmt.Sprintf("chainage %.1f–%.1f m", *ch.ChainageFrom, *ch.ChainageTo))
+	case ch.Chainage != nil:
 		parts = append(parts, fmt.Sprintf("chainage %.1f m", *ch.Chainage))
 	}
 	return strings.Join(parts, ", ")
@@ -284,7 +354,8 @@ func WriteComparisonHTML(w io.Writer, c *Comparison) error {
 			what = fmt.Sprintf("conductor %d", cc.Old)
 		}
 		cv := compareConductorView{Number: cc.Old, NewNumber: cc.New, MatchedBy: cc.MatchedBy, CoverHead: strings.ToUpper(orDepth(c.DepthQuantity)[:1]) + orDepth(c.DepthQuantity)[1:]}
-		cv.Ratio = ratioMeaning(cc.Ratio, ac) + fmt.Sprintf(" Current threshold on this conductor: %.3g A.", cc.MinCurrentChangeA)
+		cv.CurHead, cv.CovChangeHead = currentHead(cc.Ratio), coverHead(cc.DepthOffset)
+		cv.Ratio = ratioMeaning(cc, ac) + fmt.Sprintf(" Current threshold on this conductor: %.3g A.", cc.MinCurrentChangeA)
 		cur, cov := comparisonLines(cc)
 		var err error
 		if cv.Current, cv.Cover, err = seriesFigures(what, cur, cov, c.DepthQuantity, c.MinCoverM, ac); err != nil {
@@ -304,7 +375,10 @@ func WriteComparisonHTML(w io.Writer, c *Comparison) error {
 			if s.NewCover != nil && s.NewCoverSig != nil {
 				row.NewC = pm(*s.NewCover, *s.NewCoverSig)
 			}
-			if s.CoverChange != nil && s.CoverSigma != nil {
+			switch {
+			case s.CoverBeyondOffset != nil && s.CoverBeyondOffsetSigma != nil:
+				row.DC = signedPM(*s.CoverBeyondOffset, *s.CoverBeyondOffsetSigma)
+			case s.CoverChange != nil && s.CoverSigma != nil:
 				row.DC = signedPM(*s.CoverChange, *s.CoverSigma)
 			}
 			cv.Rows = append(cv.Rows, row)
@@ -395,7 +469,7 @@ var compareTemplate = template.Must(template.New("compare").Parse(strings.TrimSu
 </figure>{{end}}
 <div class="wide"><table class="groups">
 <thead><tr class="print-only"><th colspan="9">{{$.CautionShort}}</th></tr>
-<tr><th>OLD</th><th>NEW</th><th>Chainage (m)</th><th>Current OLD (A)</th><th>Current NEW (A)</th><th>Change (A)</th><th>{{.CoverHead}} OLD (m)</th><th>{{.CoverHead}} NEW (m)</th><th>Change (m)</th></tr></thead>
+<tr><th>OLD</th><th>NEW</th><th>Chainage (m)</th><th>Current OLD (A)</th><th>Current NEW (A)</th><th>{{.CurHead}}</th><th>{{.CoverHead}} OLD (m)</th><th>{{.CoverHead}} NEW (m)</th><th>{{.CovChangeHead}}</th></tr></thead>
 <tbody>
 {{range .Rows}}<tr><th scope="row">{{.Old}}</th><td>{{.New}}</td><td class="num">{{.Chainage}}</td><td class="num">{{.OldI}}</td><td class="num">{{.NewI}}</td><td class="num">{{if .CurFlag}}<strong>{{.DI}} *</strong>{{else}}{{.DI}}{{end}}</td><td class="num">{{.OldC}}</td><td class="num">{{.NewC}}</td><td class="num">{{if .CovFlag}}<strong>{{.DC}} *</strong>{{else}}{{.DC}}{{end}}{{if .Shallow}} now under the minimum cover{{end}}</td></tr>
 {{end}}</tbody>

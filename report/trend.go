@@ -2,9 +2,11 @@ package report
 
 import (
 	"encoding/json"
+	"errors"
 	"fmt"
 	"html/template"
 	"io"
+	"math"
 	"sort"
 	"strings"
 )
@@ -61,6 +63,11 @@ type TrendSurvey struct {
 	SupplyRatio      *float64 `json:"supply_ratio,omitempty"`
 	SupplyRatioSigma *float64 `json:"supply_ratio_sigma,omitempty"`
 	SupplyChanged    bool     `json:"supply_changed"`
+	// SupplyDoubt is set when this survey and the first walked different
+	// stretches and the ratio changed: the change may be a loss outside
+	// the stretch both walked (PartialCoverage.LevelDoubt, NEW this
+	// survey and OLD the first), not the supply.
+	SupplyDoubt string `json:"supply_doubt,omitempty"`
 }
 
 // TrendConductor is one conductor of the first survey, its number in each
@@ -130,7 +137,7 @@ func CompareSeries(docs []*Document, names []string, s CompareSettings) (*Trend,
 	for k := 1; k < len(docs); k++ {
 		c, err := Compare(docs[0], docs[k], names[0], names[k], s)
 		if err != nil {
-			return nil, err
+			return nil, surveyRefusal(err, 1, k+1)
 		}
 		t.pairs = append(t.pairs, c)
 		quantities[c.DepthQuantity] = true
@@ -138,10 +145,18 @@ func CompareSeries(docs []*Document, names []string, s CompareSettings) (*Trend,
 		if len(c.Conductors) > 0 && c.Conductors[0].Ratio != nil {
 			r := c.Conductors[0].Ratio
 			sv.SupplyRatio, sv.SupplyRatioSigma, sv.SupplyChanged = ptr(r.Level), ptr(r.LevelSigma), r.LevelApplied
+			if p := c.Conductors[0].Partial; p != nil && r.LevelApplied {
+				sv.SupplyDoubt = p.LevelDoubt
+			}
 		}
 		t.Surveys = append(t.Surveys, sv)
 		for _, n := range c.Notes {
 			t.Notes = append(t.Notes, fmt.Sprintf("survey %d against survey 1: %s", k+1, n))
+		}
+		// The comparison's own cautions (surveys that walked different
+		// stretches) beyond the safety cautions.
+		for _, ca := range c.Cautions[min(len(Cautions), len(c.Cautions)):] {
+			t.Cautions = append(t.Cautions, fmt.Sprintf("Survey %d against survey 1: %s", k+1, ca))
 		}
 		// Survey k's chainage along each of its conductors to the
 		// first's, by the matched stations.
@@ -187,7 +202,7 @@ func CompareSeries(docs []*Document, names []string, s CompareSettings) (*Trend,
 		} else {
 			var err error
 			if c, err = Compare(docs[k-1], docs[k], names[k-1], names[k], s); err != nil {
-				return nil, err
+				return nil, surveyRefusal(err, k, k+1)
 			}
 		}
 		t.steps = append(t.steps, c)
@@ -208,14 +223,29 @@ func CompareSeries(docs []*Document, names []string, s CompareSettings) (*Trend,
 					if ch.Chainage != nil {
 						tc.Chainage = ptr(cm.f(*ch.Chainage))
 					}
-				} else if ch.Chainage != nil {
-					tc.Chainage = nil // no frame to take it onto: the message has it
+					if ch.ChainageFrom != nil && ch.ChainageTo != nil {
+						a, b := cm.f(*ch.ChainageFrom), cm.f(*ch.ChainageTo)
+						tc.ChainageFrom, tc.ChainageTo = ptr(math.Min(a, b)), ptr(math.Max(a, b))
+					}
+				} else {
+					// No frame to take it onto: the message has it.
+					tc.Chainage, tc.ChainageFrom, tc.ChainageTo = nil, nil, nil
 				}
 			}
 			t.Changes = append(t.Changes, tc)
 		}
 	}
 	return t, nil
+}
+
+// surveyRefusal names the survey numbers in a refusal of Compare between
+// survey a (OLD) and survey b (NEW) of the series.
+func surveyRefusal(err error, a, b int) error {
+	var ce *CompareError
+	if errors.As(err, &ce) {
+		return &CompareError{Msg: fmt.Sprintf("survey %d (OLD) against survey %d (NEW): %s", a, b, ce.Msg)}
+	}
+	return err
 }
 
 func usedStations(d *Document) int {
@@ -372,7 +402,11 @@ func WriteTrendText(w io.Writer, t *Trend) error {
 		if s.SupplyRatio != nil {
 			r = pm(*s.SupplyRatio, *s.SupplyRatioSigma)
 			if s.SupplyChanged {
-				r += " (changed)"
+				if s.SupplyDoubt != "" {
+					r += fmt.Sprintf(" (changed: the supply, or %s; NEW survey %d, OLD survey 1)", s.SupplyDoubt, s.Survey)
+				} else {
+					r += " (changed)"
+				}
 			}
 		}
 		fmt.Fprintf(&b, "  %d. %s: %d stations matched, supply ratio %s\n", s.Survey, s.Name, s.Matched, r)
@@ -476,6 +510,9 @@ func WriteTrendHTML(w io.Writer, t *Trend) error {
 			row.Ratio = pm(*s.SupplyRatio, *s.SupplyRatioSigma)
 			if s.SupplyChanged {
 				row.Ratio += " (the supply changed)"
+				if s.SupplyDoubt != "" {
+					row.Ratio = pm(*s.SupplyRatio, *s.SupplyRatioSigma) + fmt.Sprintf(" (the supply changed, or %s; NEW survey %d, OLD survey 1)", s.SupplyDoubt, s.Survey)
+				}
 			}
 		}
 		if s.Survey > 1 {
@@ -553,7 +590,7 @@ var trendTemplate = template.Must(template.New("trend").Funcs(template.FuncMap{"
 {{range .Surveys}}<tr><td class="num">{{.N}}</td><td><code>{{.Name}}</code></td><td class="num">{{.Matched}}</td><td class="num">{{.Ratio}}</td><td>{{.Step}}</td></tr>
 {{end}}</tbody>
 </table></div>
-<p>The supply ratio is the current on conductor 1 over survey 1's, weighted over the stations that agree with the median ratio: a ratio other than 1 along the whole route means the rectifier, transmitter or load feeding it changed, not a loss; a loss shows as a step in the ratio between two stations, listed under What changed.</p>
+<p>The supply ratio is the current on conductor 1 over survey 1's, as compare reads its level: without a step in the ratio, the weighted mean of the stations that agree with the median ratio; with a step on a DC route, the reading on the side the current flows from; with a step whose feed end is not known (AC), the reading before the step, and compare then takes neither side as the supply's (see What changed). A ratio other than 1 along the whole route means the rectifier, transmitter or load feeding it changed, not a loss; a loss shows as a step in the ratio between two stations, listed under What changed. Where two surveys walked different stretches, a loss outside the stretch both walked moves the ratio as a changed supply does (the cautions say where).</p>
 <p class="howsure">{{.Thresholds}}</p>
 {{range .T.Notes}}<p class="note">{{.}}</p>
 {{end}}</section>

@@ -135,6 +135,7 @@ var findingValueKeys = []struct {
 	{"attenuation", []valueKeyDef{
 		{"attenuation", "%/km", "attenuation_pct_per_km"},
 		{"attenuation", "dB/km", "attenuation_db_per_km"},
+		{"between-station scatter", "A", "between_station_scatter_a"},
 	}},
 	{"walks-differ", []valueKeyDef{
 		{"level <walk>", "A", "level_<walk>_a"},

@@ -91,6 +91,10 @@ func valueKeyDocs(t *testing.T) map[string]*Document {
 	} {
 		docs[name] = scenarioDoc(t, name, 1)
 	}
+	// The spur with its sensor calibrated (the soft-iron matrix taken
+	// out, as the README's walk-through does with cal.json): its
+	// attenuation finding carries the between-station scatter.
+	docs["kestrel-moor-step.toml calibrated"], _ = kestrelDoc(t, 1, nil)
 	return docs
 }
 
@@ -168,6 +172,13 @@ func TestFindingValueKeysCover(t *testing.T) {
 	}
 	// The walk covers a fair part of the table, so that a value missing
 	// from it would likely show.
+	// Every route finding of steps' kinds can carry the between-station
+	// scatter; attenuation's was missed once (found in review).
+	for _, k := range []string{"attenuation", "current-step"} {
+		if !seen[k+" between_station_scatter_a"] {
+			t.Errorf("no %s finding gave the between-station scatter: the walk no longer covers it", k)
+		}
+	}
 	if len(seen) < 25 {
 		t.Errorf("the documents raised only %d kinds' values: %v", len(seen), seen)
 	}
