@@ -286,3 +286,49 @@ func TestPositionSigmaSystematic(t *testing.T) {
 		t.Errorf("%d fits with correlated residuals, %d of them naming position errors not independent from reading to reading: want all, and some", correlated, named)
 	}
 }
+
+// TestPositionSigmaRefusesModelMiss: a 25 A line 1.1 m down walked by one
+// traverse at exact positions, with a 20 A line 1 m down crossing it at
+// 60 degrees 12 m along (simulated truth: the Biot-Savart field of both,
+// 2 nT of noise), fitted with one line. The crossing line's field is a
+// smooth misfit, not a scatter of the positions, yet with 0.02 m of
+// position sigma given the variance-component fit took it for one on the
+// flanks, where the gradient is steep: in review the fit read
+// 23.68 ± 0.23 A (5.7 sigma off) and passed as sound where the plain one
+// was poor. The position sigmas must be refused (the note says so) and
+// the fit be the plain one's: the same current and sigma.
+func TestPositionSigmaRefusesModelMiss(t *testing.T) {
+	const noise = 2.0
+	cable := Line{Point: [3]float64{0, 0, -1.1}, Dir: [3]float64{0, 1, 0}}
+	cross := Line{Point: [3]float64{0, 12, -1.0}, Dir: [3]float64{math.Sin(math.Pi / 3), math.Cos(math.Pi / 3), 0}}
+	pts := traverse(81, -4, 4, 0, 0.3)
+	zero := 0.0
+	for seed := range uint64(3) {
+		rng := rand.New(rand.NewPCG(28, seed))
+		f := simulate(pts, []Line{cable, cross}, []float64{25, 20}, [3]float64{-150, 19200, -45100}, noise, rng)
+		fit := func(s Settings) *Result {
+			s.Count, s.ReferenceZ = 1, &zero
+			res, err := FitLines(&Problem{Points: pts, Fields: f}, &s)
+			if err != nil {
+				t.Fatal(err)
+			}
+			return res
+		}
+		plain := fit(Settings{})
+		with := fit(Settings{PositionSigmaPlan: 0.02, PositionSigmaUp: 0.02})
+		note := ""
+		for _, n := range with.Notes {
+			if strings.HasPrefix(n, PositionSigmaNote) {
+				note = n
+			}
+		}
+		p, w := plain.Sources[0], with.Sources[0]
+		t.Logf("seed %d: plain %.3f ± %.3f A rms %.1f nT; with 0.02 m %.3f ± %.3f A; %s", seed, math.Abs(p.Current), p.CurrentSigma, plain.RMS, math.Abs(w.Current), w.CurrentSigma, note)
+		if !strings.Contains(note, PositionSigmaRefusedNote) {
+			t.Errorf("seed %d: note %q does not refuse the position sigmas", seed, note)
+		}
+		if math.Abs(w.Current-p.Current) > 1e-6*math.Abs(p.Current) || math.Abs(w.CurrentSigma-p.CurrentSigma) > 1e-3*p.CurrentSigma {
+			t.Errorf("seed %d: %.4f ± %.4f A with the sigmas refused, %.4f ± %.4f A plain: want the plain fit", seed, w.Current, w.CurrentSigma, p.Current, p.CurrentSigma)
+		}
+	}
+}

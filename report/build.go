@@ -758,11 +758,12 @@ func jittered(r, noise, pm float64) bool {
 // positionsHeld reports whether res was fitted with position sigmas
 // (inverse.Settings.PositionSigmaPlan, PositionSigmaUp) whose variance,
 // beside the noise, holds its residuals: its note does not say they are
-// too small (inverse.PositionSigmaShortNote).
+// too small (inverse.PositionSigmaShortNote) nor that the fit refused
+// them (inverse.PositionSigmaRefusedNote).
 func positionsHeld(res *inverse.Result) bool {
 	for _, n := range res.Notes {
 		if strings.HasPrefix(n, inverse.PositionSigmaNote) {
-			return !strings.Contains(n, inverse.PositionSigmaShortNote)
+			return !strings.Contains(n, inverse.PositionSigmaShortNote) && !strings.Contains(n, inverse.PositionSigmaRefusedNote)
 		}
 	}
 	return false
@@ -824,13 +825,23 @@ func measuredMisfits(fits []Fit, bs *BuildSettings, rs *route.Settings) (n int, 
 		// current 13 sigma high and "5 sound", with no word (found in
 		// review).
 		jitter := jittered(r, measured, f.PositionMisfit)
-		if jitter && positionsHeld(res) {
+		if positionsHeld(res) {
 			// Given position sigmas whose variance, beside the noise,
-			// holds the misfit the positions' own scatter makes: the fit
-			// was weighed by it and its sigmas carry it (25 A at 0.8 m,
-			// positions scattered 0.1 m and given so, read 25.07 ± 0.11 A,
-			// pulls RMS 1.0 over six seeds, yet all were poor at 52 times
-			// the noise; found in review).
+			// holds the misfit (the fit's position-weighted chi-square,
+			// inverse.PositionSigmaShortNote): the fit was weighed by it
+			// and its sigmas carry it (25 A at 0.8 m, positions scattered
+			// 0.1 m and given so, read 25.07 ± 0.11 A, pulls RMS 1.0 over
+			// six seeds, yet all were poor at 52 times the noise; found in
+			// review). Judged by that variance, not by the scatter of the
+			// logged track (PositionMisfit): a true place scattered about
+			// a smooth logged one leaves the track no scatter to measure,
+			// and a track scattered 0.02 m on half of each traverse and
+			// 0.4 m on the other measures the first (robust), so such fits
+			// were all poor, "the fitted lines do not describe this
+			// field", with pulls RMS 1.18/1.10 (found in review), and the
+			// shared warning said so of fits all sound. A model miss that
+			// the position variance would take up is refused that variance
+			// in the fit (inverse.PositionSigmaRefusedNote): not held.
 			continue
 		}
 		if r > farAnyMisfit*measured {

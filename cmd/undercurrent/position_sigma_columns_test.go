@@ -25,6 +25,15 @@ import (
 // assumes: the true place about the logged one).
 func jitterBySigma(t *testing.T, src, dst string, line inverse.Line, current float64, first, second [2]float64, seed uint64) {
 	t.Helper()
+	jitterSigmaForm(t, src, dst, line, current, first, second, seed, false)
+}
+
+// jitterSigmaForm is jitterBySigma, or with logged true the other form, a
+// receiver's fix: the logged place scatters about the true one (the
+// simulated log's) by each reading's sigma, the readings stay the field
+// of the true place.
+func jitterSigmaForm(t *testing.T, src, dst string, line inverse.Line, current float64, first, second [2]float64, seed uint64, logged bool) {
+	t.Helper()
 	raw, err := os.ReadFile(src)
 	if err != nil {
 		t.Fatal(err)
@@ -70,14 +79,20 @@ func jitterBySigma(t *testing.T, src, dst string, line inverse.Line, current flo
 			sd = second
 		}
 		seen[g]++
-		logged := [3]float64{num(c[1]), num(c[2]), num(c[3])}
-		truth := [3]float64{logged[0] + sd[0]*rng.NormFloat64(), logged[1] + sd[0]*rng.NormFloat64(), logged[2] + sd[1]*rng.NormFloat64()}
-		// Checked against the simulated log: the scenario's line field at
-		// the first reading is the reading less the earth's field within
-		// the noise and drift (195, -338, 1114 nT against 189, -339, 1117).
-		bt, bl := line.Field(truth, current), line.Field(logged, current)
-		for k := range 3 {
-			c[4+k] = strconv.FormatFloat(num(c[4+k])+(bt[k]-bl[k])*1e9, 'g', -1, 64) // T to nT
+		at := [3]float64{num(c[1]), num(c[2]), num(c[3])}
+		moved := [3]float64{at[0] + sd[0]*rng.NormFloat64(), at[1] + sd[0]*rng.NormFloat64(), at[2] + sd[1]*rng.NormFloat64()}
+		if logged {
+			for k := range 3 {
+				c[1+k] = strconv.FormatFloat(moved[k], 'g', -1, 64)
+			}
+		} else {
+			// Checked against the simulated log: the scenario's line field at
+			// the first reading is the reading less the earth's field within
+			// the noise and drift (195, -338, 1114 nT against 189, -339, 1117).
+			bt, bl := line.Field(moved, current), line.Field(at, current)
+			for k := range 3 {
+				c[4+k] = strconv.FormatFloat(num(c[4+k])+(bt[k]-bl[k])*1e9, 'g', -1, 64) // T to nT
+			}
 		}
 		c = append(c, strconv.FormatFloat(sd[0]*1000, 'g', -1, 64), strconv.FormatFloat(sd[1], 'g', -1, 64))
 		lines[i] = strings.Join(c, ",")
