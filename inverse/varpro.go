@@ -94,9 +94,12 @@ type separable struct {
 	w    []float64 // row weights (square roots of robust weights), nil for 1
 	bg   BackgroundModel
 	org  [3]float64 // background gradient origin
-	geom []lineGeom
-	dips []dipGeom
-	q    int // basis columns: lines, then 3 per dipole, then background
+	// along is BackgroundAlong's direction (alongAxis of pts about org), zero for
+	// the other backgrounds.
+	along [3]float64
+	geom  []lineGeom
+	dips  []dipGeom
+	q     int // basis columns: lines, then 3 per dipole, then background
 
 	// workspace and cached state of the last evaluation. The uniform background columns
 	// are projected out analytically (see evaluate); a holds the other g = q - 3 columns
@@ -162,6 +165,9 @@ func newSeparableIn(scr *scratch, pts [][3]float64, y []float64, nrhs int, bg Ba
 	// scratch.separable).
 	*sp = separable{pts: pts, m: m, nrhs: nrhs, y: y, bg: bg, org: org, geom: geom, dips: dips, lmp: sp.lmp, pos: sp.pos}
 	sp.q = len(geom) + 3*len(dips) + bg.columns()
+	if bg == BackgroundAlong {
+		sp.along = alongAxis(pts, org)
+	}
 	// Layout of a: lines, dipoles, gradient terms; the uniform background is implicit.
 	if cap(sp.pos) >= sp.q {
 		sp.pos = sp.pos[:sp.q]
@@ -370,7 +376,7 @@ func (sp *separable) fillRaw(phi []float64, rs, cs int, pos []int, pts [][3]floa
 			}
 		}
 	} else if nb > 0 && (pos == nil || nb > 3) {
-		bgc := Background{Origin: sp.org, Gradient: sp.bg == BackgroundGradient}
+		bgc := Background{Origin: sp.org, Gradient: sp.bg == BackgroundGradient, Along: sp.along}
 		c0 := sp.bgCol()
 		for i, r := range pts {
 			bgc.Basis(r, basis[:nb])

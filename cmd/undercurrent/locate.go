@@ -845,11 +845,14 @@ type group struct {
 	phasors [][3]complex128 // AC
 	res     *inverse.Result // fit
 	err     error           // fit failure
-	travel  []float64       // AC: distance walked during each window, m
-	half    [][3]float64    // AC: each window's half-travel (calibrate.Window.Travel), m
-	times   []float64       // AC: each window's centre time, s
-	ramp    *groupRamp      // AC: the phase ramp fitted (phaseramp.go); nil for none
-	res0    *inverse.Result // AC: with a ramp, the fit without one
+	// bg is the background the fit took: uniform, or with a term along the
+	// traverse where a far source to the side needed it (farside.go).
+	bg     inverse.BackgroundModel
+	travel []float64       // AC: distance walked during each window, m
+	half   [][3]float64    // AC: each window's half-travel (calibrate.Window.Travel), m
+	times  []float64       // AC: each window's centre time, s
+	ramp   *groupRamp      // AC: the phase ramp fitted (phaseramp.go); nil for none
+	res0   *inverse.Result // AC: with a ramp, the fit without one
 	// chirp is (AC) the drift of the field's frequency, Hz/s, followed
 	// within the group about its middle (followDrift); 0 for none.
 	chirp   float64
@@ -2720,6 +2723,9 @@ func fitGroups(ctx context.Context, o *locateOptions, sv *survey, progress io.Wr
 			for g := range jobs {
 				noise := sv.groupNoise(g, o.noise)
 				g.res, g.err = inverse.FitLines(g.problem(sv.ac, noise), set)
+				if !sv.ac {
+					chooseAlong(g, set, noise)
+				}
 				if sv.ac && !o.coil.on() {
 					fitRamp(g, set, noise)
 				}
@@ -2850,12 +2856,16 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 			head.Warnings = append(head.Warnings, l.source+": "+w)
 		}
 	}
+	if w := alongWarning(sv.groups); w != "" {
+		head.Warnings = append(head.Warnings, w)
+	}
 	if w := wrongFreqWarning(sv, o.freq); w != "" {
 		head.Warnings = append(head.Warnings, w)
 	}
 	fits := make([]report.Fit, len(sv.groups))
 	for i, g := range sv.groups {
 		fits[i] = report.Fit{Key: g.key, Problem: g.problem(sv.ac, sv.groupNoise(g, o.noise)), Result: g.res, Err: g.err, Settings: o.fitSettings()}
+		fits[i].Settings.Background = g.bg
 		if g.ramp != nil {
 			fits[i].PhaseRampHz, fits[i].PhaseRampSigmaHz = g.ramp.hz, g.ramp.sigma
 		}
