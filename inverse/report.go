@@ -1196,7 +1196,7 @@ func (f *fitter) report(c *candidate, scores []ModelScore) (*Result, error) {
 			for j := range 3 {
 				r.AlongSigma[j] = math.Sqrt(su.cov.At(np+bc+3+j, np+bc+3+j))
 			}
-			r.AlongAxis = sp.along
+			r.AlongAxis = alongAxis(sp.pts, sp.org)
 		}
 	}
 	// Residuals and predictions, unweighted.

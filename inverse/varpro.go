@@ -94,12 +94,9 @@ type separable struct {
 	w    []float64 // row weights (square roots of robust weights), nil for 1
 	bg   BackgroundModel
 	org  [3]float64 // background gradient origin
-	// along is BackgroundAlong's direction (alongAxis of pts about org), zero for
-	// the other backgrounds.
-	along [3]float64
-	geom  []lineGeom
-	dips  []dipGeom
-	q     int // basis columns: lines, then 3 per dipole, then background
+	geom []lineGeom
+	dips []dipGeom
+	q    int // basis columns: lines, then 3 per dipole, then background
 
 	// workspace and cached state of the last evaluation. The uniform background columns
 	// are projected out analytically (see evaluate); a holds the other g = q - 3 columns
@@ -165,9 +162,6 @@ func newSeparableIn(scr *scratch, pts [][3]float64, y []float64, nrhs int, bg Ba
 	// scratch.separable).
 	*sp = separable{pts: pts, m: m, nrhs: nrhs, y: y, bg: bg, org: org, geom: geom, dips: dips, lmp: sp.lmp, pos: sp.pos}
 	sp.q = len(geom) + 3*len(dips) + bg.columns()
-	if bg == BackgroundAlong {
-		sp.along = alongAxis(pts, org)
-	}
 	// Layout of a: lines, dipoles, gradient terms; the uniform background is implicit.
 	if cap(sp.pos) >= sp.q {
 		sp.pos = sp.pos[:sp.q]
@@ -376,7 +370,12 @@ func (sp *separable) fillRaw(phi []float64, rs, cs int, pos []int, pts [][3]floa
 			}
 		}
 	} else if nb > 0 && (pos == nil || nb > 3) {
-		bgc := Background{Origin: sp.org, Gradient: sp.bg == BackgroundGradient, Along: sp.along}
+		bgc := Background{Origin: sp.org, Gradient: sp.bg == BackgroundGradient}
+		if sp.bg == BackgroundAlong {
+			// Formed here, not kept in the separable: the direction is only needed
+			// for this background, and a larger separable slowed every fit.
+			bgc.Along = alongAxis(sp.pts, sp.org)
+		}
 		c0 := sp.bgCol()
 		for i, r := range pts {
 			bgc.Basis(r, basis[:nb])
