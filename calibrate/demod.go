@@ -129,15 +129,23 @@ type DemodSettings struct {
 	// them, pulled a walked 50 Hz log's estimated frequency by 0.013 Hz
 	// (found in review).
 	Harmonics []int
-	// Drift adds a linear term per window (the constant term, which
-	// absorbs the Earth's field, is always fitted). A sensor walked
-	// through a steady (DC) field's gradient sees it change about
-	// linearly within the window, and a slope s per second projects onto
+	// Drift adds a cubic background per window: τ, and in a window of
+	// MinBackgroundCycles or more the quadratic and cubic Legendre
+	// polynomials of the window's time (fillBackground, DriftColumns; the
+	// constant term, which absorbs the Earth's field, is always fitted). A sensor walked through a steady (DC) field's gradient sees
+	// it change within the window, and a slope s per second projects onto
 	// sin ωτ, even over whole cycles, as an amplitude 2s/ω: fitted with
 	// the constant alone, a DC conductor passed at a steady pace reads as
-	// an AC field proportional to its gradient. The column's correlation
-	// with sin ωτ is about 0.78/cycles (√24/(2π cycles)), so over ten
-	// cycles it costs about 0.3% of the fundamental's sigma.
+	// an AC field proportional to its gradient. Near the conductor the
+	// change is far from straight within a window of a slow tone, and a
+	// linear term alone left its curvature and above all its cubic part
+	// (which projects onto sin ωτ like the slope, at order 1/cycles²)
+	// to leak: a pipe carrying 2 A DC and a 4 Hz tone, walked at
+	// 0.8 m/s in 2.5 s windows, read up to 0.86 nT of phantom tone,
+	// 5 mA further lines in sound fits (found in review); with the cubic
+	// 0.11 nT, and no further lines. The linear column's correlation with sin ωτ is about
+	// 0.78/cycles (√24/(2π cycles)), so over ten cycles it costs about
+	// 0.3% of the fundamental's sigma, and the cubic's about as much.
 	Drift bool
 	// ConstantAmplitude fits each window with a tone of constant amplitude
 	// (the plain three-parameter sine fit). By default the fit also takes a
@@ -567,10 +575,7 @@ func DemodulateColumns(c *Columns, set *DemodSettings) (*DemodResult, error) {
 			}
 		}
 	}
-	p := 3 + 2*len(ds.Harmonics)
-	if ds.Drift {
-		p++
-	}
+	p := 3 + 2*len(ds.Harmonics) + DriftColumns(&ds, N, dt)
 	if !ds.ConstantAmplitude {
 		p += 4 + 2*len(ds.Harmonics)
 	}
@@ -583,7 +588,13 @@ func DemodulateColumns(c *Columns, set *DemodSettings) (*DemodResult, error) {
 		// Name the shortest window that holds enough samples: the fit
 		// needs at least p+2 (found in review: "9 samples, too few for 8
 		// parameters" read as a contradiction and named no way out).
-		return nil, fmt.Errorf("calibrate: demodulate: a %g s window holds %d samples at %g Hz sampling, too few for the %d parameters each window fits (the signal with its change across the window, a constant and linear term, and any harmonics and mains lines fitted beside it) with residuals left to judge them: use a window of at least %.3g s", ds.Window, N, fs, p, float64(p+2)/fs)
+		// A longer window may take the background's quadratic and cubic
+		// too (DriftColumns), and so need more samples still.
+		m := p + 2
+		for m < p-DriftColumns(&ds, N, dt)+DriftColumns(&ds, m, dt)+2 {
+			m++
+		}
+		return nil, fmt.Errorf("calibrate: demodulate: a %g s window holds %d samples at %g Hz sampling, too few for the %d parameters each window fits (the signal with its change across the window, a constant and the background's change, and any harmonics and mains lines fitted beside it) with residuals left to judge them: use a window of at least %.3g s", ds.Window, N, fs, p, float64(m)/fs)
 	}
 	// The interval measured from absolute Unix times is off by parts per
 	// million (their float64 rounding), so a window of just MinCycles
@@ -601,7 +612,7 @@ func DemodulateColumns(c *Columns, set *DemodSettings) (*DemodResult, error) {
 	if !enough && len(ds.Harmonics) > 0 {
 		base = templateInflation(N, dt, &ds, nil)
 	}
-	tpl, err := newTemplate(N, dt, ds.Freq, ds.Harmonics, ds.Drift, !ds.ConstantAmplitude, ds.Nuisance)
+	tpl, err := newTemplate(N, dt, ds.Freq, ds.Harmonics, DriftColumns(&ds, N, dt), !ds.ConstantAmplitude, ds.Nuisance)
 	if err != nil {
 		if enough || !math.IsInf(base, 0) && len(ds.Harmonics) > 0 {
 			// Singular outright: say why when a longer window would do.
@@ -930,7 +941,7 @@ type template struct {
 	basis     [][]float64 // p columns of n
 	ginv      []float64   // p×p row-major (XᵀX)⁻¹
 	harmonics []int
-	drift     bool
+	drift     int // background columns beyond the constant (DriftColumns)
 	slope     bool
 	nuisance  []float64
 	freq      float64
@@ -942,18 +953,61 @@ type template struct {
 
 // slopeStart is the index of the first slope column (the fundamental's
 // (τ-τ̄) cos ωτ) of a basis with the harmonics h and drift.
-func slopeStart(h []int, drift bool) int {
-	q := 3 + 2*len(h)
-	if drift {
-		q++
+func slopeStart(h []int, drift int) int {
+	return 3 + 2*len(h) + drift
+}
+
+// MinBackgroundCycles is the fewest cycles of the signal a window must
+// hold for DemodSettings.Drift to fit the background's quadratic and cubic
+// beside τ. Over fewer the cubic can hardly be told from the signal's own
+// change across the window (the fundamental's variance, against a
+// well-spread window's, went from 1.13 to 1.56 at three cycles and from
+// 1.8 to 37 at two, where with the signal's harmonics it passed
+// MaxWindowInflation), while a shorter window spans less of the path and
+// leaks less of the background's curve (about in proportion to its
+// length): such a window takes τ alone.
+const MinBackgroundCycles = 4
+
+// DriftColumns is the number of columns settings set take for the
+// background beyond the constant in windows of n samples dt seconds apart:
+// none without Drift; τ and the quadratic and cubic of the window's
+// background (fillBackground) with it in a window of MinBackgroundCycles
+// or more; τ alone in a shorter one.
+func DriftColumns(set *DemodSettings, n int, dt float64) int {
+	switch {
+	case set == nil || !set.Drift:
+		return 0
+	case set.Freq*float64(n)*dt >= MinBackgroundCycles-0.005:
+		return 3
 	}
-	return q
+	return 1
+}
+
+// fillBackground fills c2 and c3 with the quadratic and cubic Legendre
+// polynomials of the window's local times tau scaled to [-1, 1] about the
+// window's midpoint, P2(u) = (3u²-1)/2 and P3(u) = (5u³-3u)/2: with the
+// constant and τ they fit a cubic background (DemodSettings.Drift), and
+// in that form the columns stay well conditioned however long the window.
+func fillBackground(c2, c3, tau []float64) {
+	n := len(tau)
+	if n == 0 {
+		return
+	}
+	mid, half := 0.5*(tau[0]+tau[n-1]), 0.5*(tau[n-1]-tau[0])
+	if !(half > 0) {
+		half = 1
+	}
+	for k, t := range tau {
+		u := (t - mid) / half
+		c2[k] = 0.5 * (3*u*u - 1)
+		c3[k] = 0.5 * u * (5*u*u - 3)
+	}
 }
 
 // slopeColumns fills the slope columns of the fundamental and of each
 // harmonic (fillSlope) in cols, laid out as in template, from their cos
 // and sin columns and the window's local times tau.
-func slopeColumns(cols [][]float64, h []int, drift bool, tau []float64) {
+func slopeColumns(cols [][]float64, h []int, drift int, tau []float64) {
 	q := slopeStart(h, drift)
 	fillSlope(cols[q], cols[q+1], cols[0], cols[1], tau)
 	fillCurve(cols[q+2], cols[q+3], cols[0], cols[1], tau)
@@ -970,11 +1024,8 @@ func (tp *template) nuisanceCols() int {
 	return 2 * len(tp.nuisance)
 }
 
-func newTemplate(n int, dt, freq float64, harmonics []int, drift, slope bool, nuisance []float64) (*template, error) {
-	q := 3 + 2*len(harmonics)
-	if drift {
-		q++
-	}
+func newTemplate(n int, dt, freq float64, harmonics []int, drift int, slope bool, nuisance []float64) (*template, error) {
+	q := slopeStart(harmonics, drift)
 	p := q
 	if slope {
 		p += 4 + 2*len(harmonics)
@@ -986,17 +1037,22 @@ func newTemplate(n int, dt, freq float64, harmonics []int, drift, slope bool, nu
 	for j := range tp.basis {
 		tp.basis[j] = make([]float64, n)
 	}
-	row := make([]float64, q)
+	// basisRow fills all but the background's quadratic and cubic.
+	nb := 3 + 2*len(harmonics) + min(drift, 1)
+	row := make([]float64, nb)
 	w := 2 * math.Pi * freq
 	for k := 0; k < n; k++ {
-		basisRow(row, float64(k)*dt, w, harmonics, drift)
-		for j := 0; j < q; j++ {
+		basisRow(row, float64(k)*dt, w, harmonics, drift > 0)
+		for j := 0; j < nb; j++ {
 			tp.basis[j][k] = row[j]
 		}
 	}
 	tau := make([]float64, n)
 	for k := range tau {
 		tau[k] = float64(k) * dt
+	}
+	if drift == 3 {
+		fillBackground(tp.basis[nb], tp.basis[nb+1], tau)
 	}
 	if slope {
 		// τ̄ = (n-1) dt / 2; k dt - τ̄ is formed as (2k - (n-1)) dt/2, exact
@@ -1162,7 +1218,7 @@ func conditionedWindow(fs float64, ds *DemodSettings, maxInflation float64) (flo
 	var inf float64
 	for m := 1; m <= maxWindowMultiple; m++ {
 		n := int(math.Round(float64(m) * ds.Window / dt))
-		tp, err := newTemplate(n, dt, ds.Freq, ds.Harmonics, ds.Drift, !ds.ConstantAmplitude, ds.Nuisance)
+		tp, err := newTemplate(n, dt, ds.Freq, ds.Harmonics, DriftColumns(ds, n, dt), !ds.ConstantAmplitude, ds.Nuisance)
 		if err != nil {
 			inf = math.Inf(1)
 			continue
@@ -1178,7 +1234,7 @@ func conditionedWindow(fs float64, ds *DemodSettings, maxInflation float64) (flo
 // (template.inflation) in a window of n samples dt apart with ds's
 // settings but the harmonics h; +Inf when the basis is singular.
 func templateInflation(n int, dt float64, ds *DemodSettings, h []int) float64 {
-	tp, err := newTemplate(n, dt, ds.Freq, h, ds.Drift, !ds.ConstantAmplitude, ds.Nuisance)
+	tp, err := newTemplate(n, dt, ds.Freq, h, DriftColumns(ds, n, dt), !ds.ConstantAmplitude, ds.Nuisance)
 	if err != nil {
 		return math.Inf(1)
 	}
@@ -1366,7 +1422,7 @@ func (d *demodulator) window(lo, hi int) error {
 	var fitQ [3]float64 // the joint fit's Schur complement per axis (EstimateFreq)
 	if set.EstimateFreq {
 		if d.fit == nil {
-			d.fit = newFreqFit(set.Harmonics, set.Drift, set.Nuisance, !set.ConstantAmplitude)
+			d.fit = newFreqFit(set.Harmonics, d.tpl.drift, set.Nuisance, !set.ConstantAmplitude)
 		}
 		var grid *nuisanceGrid
 		if len(set.Nuisance) > 0 && hi-lo == d.tpl.n && d.uniform(lo, hi) {
@@ -1547,7 +1603,7 @@ func (d *demodulator) window(lo, hi int) error {
 			harm[j][k] = phasor(beta[3+2*j], beta[4+2*j], h)
 		}
 		if tpl.slope {
-			q := slopeStart(set.Harmonics, set.Drift)
+			q := slopeStart(set.Harmonics, tpl.drift)
 			w.Slope[k] = phasor(beta[q], beta[q+1], 1)
 			w.Curve[k] = 2 * phasor(beta[q+2], beta[q+3], 1)
 		}
@@ -1569,7 +1625,7 @@ func (d *demodulator) generalTemplate(g *windowTimes, freq float64, grid *nuisan
 	n, p := len(g.tau), d.tpl.p
 	tp := d.gen
 	if tp == nil {
-		tp = &template{p: p, basis: make([][]float64, p), ginv: make([]float64, p*p), harmonics: d.set.Harmonics, drift: d.set.Drift, slope: d.tpl.slope, nuisance: d.tpl.nuisance}
+		tp = &template{p: p, basis: make([][]float64, p), ginv: make([]float64, p*p), harmonics: d.set.Harmonics, drift: d.tpl.drift, slope: d.tpl.slope, nuisance: d.tpl.nuisance}
 		d.gen = tp
 		d.gram = make([]float64, p*p)
 		d.chol = make([]float64, p*p)
@@ -1583,9 +1639,9 @@ func (d *demodulator) generalTemplate(g *windowTimes, freq float64, grid *nuisan
 		tp.basis[j] = tp.basis[j][:n]
 	}
 	tp.n, tp.freq = n, freq
-	fillBasis(tp.basis, g, 2*math.Pi*freq, d.set.Harmonics, d.set.Drift)
+	fillBasis(tp.basis, g, 2*math.Pi*freq, d.set.Harmonics, tp.drift)
 	if tp.slope {
-		slopeColumns(tp.basis, d.set.Harmonics, d.set.Drift, g.tau)
+		slopeColumns(tp.basis, d.set.Harmonics, tp.drift, g.tau)
 	}
 	q := p - tp.nuisanceCols()
 	if grid != nil {

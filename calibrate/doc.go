@@ -94,13 +94,16 @@
 //
 // In each window the readings of one axis are fitted by least squares with
 //
-//	y(t) = a cos ωτ + b sin ωτ + c  [+ harmonics] [+ d τ],   τ = t - t0,
+//	y(t) = a cos ωτ + b sin ωτ + c  [+ harmonics] [+ d τ [+ e P2 + g P3]],   τ = t - t0,
 //
 // the three-parameter sine fit of IEEE Std 1057 and IEEE Std 1241 (known
 // frequency, linear in a, b, c). The constant absorbs the Earth's field and
-// the optional linear term slow drift. The complex RMS phasor, referenced
-// to absolute time so that windows are phase-coherent at a steady
-// frequency, is
+// the optional linear term slow drift; in Demodulate's windows of
+// MinBackgroundCycles or more that term comes with the quadratic and cubic
+// Legendre polynomials P2, P3 of the window's time, for a steady field
+// walked through near its source (DemodSettings.Drift). The complex RMS
+// phasor, referenced to absolute time so that windows are phase-coherent
+// at a steady frequency, is
 //
 //	B = (a - i b)/√2 · exp(-i ω t0),   y(t) = √2 Re(B exp(i ω t)) + ...
 //

@@ -13,12 +13,17 @@ import (
 // refDesign is the design matrix of the sine-fit model at angular
 // frequency w on the times tt (basis origin tt[0]), built column by column
 // from math.Sincos: cos, sin, 1, the cos and sin of each harmonic, τ when
-// drift is set, and with hslope (τ-τ̄) cos and (τ-τ̄) sin of each harmonic
-// (τ̄ the mean of τ; DemodSettings.Harmonics).
+// drift is set (and τ² and τ³ too in a window of MinBackgroundCycles or
+// more, as DemodSettings.Drift), and with hslope (τ-τ̄) cos and (τ-τ̄) sin
+// of each harmonic (τ̄ the mean of τ; DemodSettings.Harmonics).
 func refDesign(tt []float64, w float64, harmonics []int, drift, hslope bool) *mat.Dense {
 	q := 3 + 2*len(harmonics)
+	cubic := refCubic(tt, w, drift)
 	if drift {
 		q++
+	}
+	if cubic {
+		q += 2
 	}
 	p := q
 	if hslope {
@@ -41,7 +46,11 @@ func refDesign(tt []float64, w float64, harmonics []int, drift, hslope bool) *ma
 			X.Set(i, 3+2*j, ch)
 			X.Set(i, 4+2*j, sh)
 		}
-		if drift {
+		if cubic {
+			X.Set(i, q-3, tau)
+			X.Set(i, q-2, tau*tau)
+			X.Set(i, q-1, tau*tau*tau)
+		} else if drift {
 			X.Set(i, q-1, tau)
 		}
 		if hslope {
@@ -53,6 +62,13 @@ func refDesign(tt []float64, w float64, harmonics []int, drift, hslope bool) *ma
 		}
 	}
 	return X
+}
+
+// refCubic says whether refDesign takes τ² and τ³ beside τ: with drift,
+// in a window of MinBackgroundCycles or more of the frequency w/2π.
+func refCubic(tt []float64, w float64, drift bool) bool {
+	n := len(tt)
+	return drift && n > 1 && w/(2*math.Pi)*(tt[n-1]-tt[0])*float64(n)/float64(n-1) >= MinBackgroundCycles-0.005
 }
 
 // refLinear is the linear (three-parameter, plus harmonics and drift) fit
@@ -168,6 +184,9 @@ func refJointFit(t *testing.T, tt []float64, ys [][]float64, freq0 float64, harm
 	p := 3 + 2*len(harmonics)
 	if drift {
 		p++
+	}
+	if refCubic(tt, 2*math.Pi*freq0, drift) {
+		p += 2
 	}
 	if hslope {
 		p += 2*len(harmonics) + 2
@@ -407,7 +426,7 @@ func TestDemodulateEstimateFreqMatchesReference(t *testing.T) {
 							}
 							continue
 						}
-						ref, err := FitSine(tt, c.B[k][lo:lo+n], want, &SineSettings{Harmonics: set.Harmonics, Drift: set.Drift, Slope: !constant})
+						ref, err := FitSine(tt, c.B[k][lo:lo+n], want, &SineSettings{Harmonics: set.Harmonics, Drift: set.Drift, Background: DriftColumns(&set, n, 1.0/2000) == 3, Slope: !constant})
 						if err != nil {
 							t.Fatal(err)
 						}

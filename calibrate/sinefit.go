@@ -96,6 +96,11 @@ type SineSettings struct {
 	Harmonics []int
 	// Drift adds a linear term for slow drift.
 	Drift bool
+	// Background, with Drift, adds the quadratic and cubic of the window's
+	// time to the linear term, as DemodSettings.Drift does in windows of
+	// MinBackgroundCycles or more (fillBackground). FitSine only: FitSine4
+	// refuses it.
+	Background bool
 	// Slope adds the columns (t-t̄) cos ω(t-T0) and (t-t̄) sin ω(t-T0), t̄
 	// the mean time: a linear change of the fundamental's amplitude and
 	// phase (DemodSettings.ConstantAmplitude), the quadratic change about
@@ -125,6 +130,10 @@ func FitSine(t, y []float64, freq float64, set *SineSettings) (SineFit, error) {
 	if ss.Drift {
 		q++
 	}
+	nb := q // columns basisRow fills
+	if ss.Drift && ss.Background {
+		q += 2
+	}
 	p := q
 	if ss.Slope {
 		p += 4 + 2*len(ss.Harmonics)
@@ -145,8 +154,17 @@ func FitSine(t, y []float64, freq float64, set *SineSettings) (SineFit, error) {
 	X := mat.NewDense(len(t), p, nil)
 	row := make([]float64, p)
 	w := 2 * math.Pi * freq
+	half := 0.5 * (t[len(t)-1] - t0)
+	if !(half > 0) {
+		half = 1
+	}
 	for i, ti := range t {
-		basisRow(row[:q], ti-t0, w, ss.Harmonics, ss.Drift)
+		basisRow(row[:nb], ti-t0, w, ss.Harmonics, ss.Drift)
+		if q > nb {
+			// The Legendre polynomials of fillBackground.
+			u := (ti - t0 - half) / half
+			row[nb], row[nb+1] = 0.5*(3*u*u-1), 0.5*u*(5*u*u-3)
+		}
 		if ss.Slope {
 			tc := ti - t0 - tm
 			row[q], row[q+1] = tc*row[0], tc*row[1]
@@ -166,7 +184,7 @@ func FitSine(t, y []float64, freq float64, set *SineSettings) (SineFit, error) {
 		f.Harmonics = append(f.Harmonics, [2]float64{beta[3+2*j], beta[4+2*j]})
 	}
 	if ss.Drift {
-		f.Drift = beta[q-1]
+		f.Drift = beta[nb-1]
 	}
 	if ss.Slope {
 		f.Slope = [2]float64{beta[q], beta[q+1]}
@@ -233,6 +251,9 @@ func FitSine4(t, y []float64, freq0 float64, set *SineSettings) (SineFit, error)
 	}
 	if ss.MaxIter == 0 {
 		ss.MaxIter = 30
+	}
+	if ss.Background {
+		return SineFit{}, errors.New("calibrate: four-parameter fit: the background's quadratic and cubic are fitted by FitSine only")
 	}
 	if ss.Slope {
 		return SineFit{}, errors.New("calibrate: four-parameter fit: a slope of the amplitude cannot be fitted with the frequency (the frequency is the slope of the phase)")
@@ -419,7 +440,7 @@ func sincosGrid(cs, sn []float64, g *windowTimes, w float64) {
 // sin of each harmonic, and τ when drift is set (the order of basisRow).
 // Harmonics are powers of exp(i w τ), so only the fundamental costs a
 // sine and cosine per sample.
-func fillBasis(cols [][]float64, g *windowTimes, w float64, harmonics []int, drift bool) {
+func fillBasis(cols [][]float64, g *windowTimes, w float64, harmonics []int, drift int) {
 	cs, sn := cols[0], cols[1]
 	sincosGrid(cs, sn, g, w)
 	one := cols[2]
@@ -437,8 +458,12 @@ func fillBasis(cols [][]float64, g *windowTimes, w float64, harmonics []int, dri
 			hc[k], hs[k] = pc, ps
 		}
 	}
-	if drift {
-		copy(cols[3+2*len(harmonics)], g.tau)
+	if drift > 0 {
+		q := 3 + 2*len(harmonics)
+		copy(cols[q], g.tau)
+		if drift == 3 {
+			fillBackground(cols[q+1], cols[q+2], g.tau)
+		}
 	}
 }
 
@@ -573,7 +598,7 @@ const rssFloor = 1e-13
 // uncorrelated, so estimating the weights does not widen it.
 type freqFit struct {
 	harmonics []int
-	drift     bool
+	drift     int // background columns beyond the constant (DriftColumns)
 	// nuisance lists frequencies fitted alongside (DemodSettings.Nuisance);
 	// their columns, which do not depend on ω, follow the basis columns in
 	// cols and are filled by load.
@@ -607,11 +632,8 @@ type freqFit struct {
 	b0     []float64    // scratch, p
 }
 
-func newFreqFit(harmonics []int, drift bool, nuisance []float64, slope bool) *freqFit {
-	p := 3 + 2*len(harmonics)
-	if drift {
-		p++
-	}
+func newFreqFit(harmonics []int, drift int, nuisance []float64, slope bool) *freqFit {
+	p := 3 + 2*len(harmonics) + drift
 	if slope {
 		p += 2*len(harmonics) + 4*len(nuisance)
 	} else {

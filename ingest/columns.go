@@ -31,6 +31,14 @@ const (
 	// WithCurrentRecord); an addition to the agreed set, absent from
 	// magnetometer logs.
 	ColCurrent = "current"
+	// ColSigmaPlan and ColSigmaUp are a reading's own one-sigma position
+	// uncertainty, m, across the plan (east and north, each) and in
+	// height: a positioned survey's per-fix accuracy estimate (a GNSS
+	// receiver's horizontal and vertical accuracy, small with RTK fixed,
+	// large with float), which inverse.Problem.PositionSigmas carries
+	// into the fit; an addition to the agreed set, absent from most logs.
+	ColSigmaPlan = "sigma_plan"
+	ColSigmaUp   = "sigma_up"
 )
 
 // Names of input-only columns that carry WGS84 positions. They never appear
@@ -77,6 +85,8 @@ const (
 	cQz
 	cF
 	cCurrent
+	cSigmaPlan
+	cSigmaUp
 	cLat
 	cLon
 	cHeight
@@ -87,6 +97,7 @@ const (
 var canonNames = [nCanon]string{
 	ColTime, ColX, ColY, ColZ, ColBx, ColBy, ColBz, ColGroup, ColTemp,
 	ColRoll, ColPitch, ColYaw, ColQw, ColQx, ColQy, ColQz, ColF, ColCurrent,
+	ColSigmaPlan, ColSigmaUp,
 	colLat, colLon, colHeight,
 }
 
@@ -111,6 +122,12 @@ var aliases = map[string]int{
 	// A map grid's coordinates are east and north in metres (or the unit
 	// their suffix gives): "Easting (m)", "northing_ft".
 	"easting": cX, "northing": cY,
+	// A receiver's per-fix accuracy estimates as loggers and exports name
+	// them (horizontal and vertical; the unit by suffix, "hacc_mm").
+	"hacc": cSigmaPlan, "h_acc": cSigmaPlan, "horizontal_accuracy": cSigmaPlan, "horizontal accuracy": cSigmaPlan,
+	"sigma_h": cSigmaPlan, "sigma_horizontal": cSigmaPlan, "std_h": cSigmaPlan,
+	"vacc": cSigmaUp, "v_acc": cSigmaUp, "vertical_accuracy": cSigmaUp, "vertical accuracy": cSigmaUp,
+	"sigma_v": cSigmaUp, "sigma_vertical": cSigmaUp, "std_v": cSigmaUp,
 }
 
 func canonIndex(name string) (int, bool) {
@@ -140,7 +157,7 @@ func kindOf(c int) kind {
 	switch c {
 	case cTime:
 		return kindTime
-	case cX, cY, cZ, cHeight:
+	case cX, cY, cZ, cHeight, cSigmaPlan, cSigmaUp:
 		return kindLength
 	case cBx, cBy, cBz, cF:
 		return kindField
@@ -155,6 +172,10 @@ func kindOf(c int) kind {
 	}
 	return kindPlain
 }
+
+// isSigma reports whether c is a position sigma column, whose values
+// may not be negative.
+func isSigma(c int) bool { return c == cSigmaPlan || c == cSigmaUp }
 
 func fieldType(c int) arrow.DataType {
 	if c == cGroup {

@@ -1051,6 +1051,9 @@ func (r *csvReader) parseChunk(data []byte, line int, rb *rawBatch, plain bool) 
 			if scale != 1 {
 				v = scaled(v, scale)
 			}
+			if v < 0 && isSigma(u.c) {
+				return lineErr(r.name, fieldLine(ln, fields[u.src], line), pl.header[u.src], string(t), "%s is negative: a position's uncertainty (%s) is a size, 0 or more", quoteText(string(t)), canonNames[u.c])
+			}
 			if u.c == cTime && r.zc != nil && v == v {
 				v = r.zc.take(v, tr, false, fmt.Sprintf("%s:%d: column %s", r.name, fieldLine(ln, fields[u.src], line), pl.header[u.src]), string(t))
 			}
@@ -1135,7 +1138,7 @@ func (r *csvReader) fastLine(ln []byte, rb *rawBatch) bool {
 			continue
 		}
 		v, end, ok := parseFastAt(ln, p)
-		if !ok || (end < n && ln[end] != d) {
+		if !ok || (end < n && ln[end] != d) || (v < 0 && isSigma(op)) {
 			return false
 		}
 		rb.f[op][row] = scaled(v, r.opScale[k])

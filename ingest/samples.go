@@ -16,21 +16,25 @@ import (
 // inverse and report use). Missing values (IAGA-2002 99999/88888, or cells
 // accepted with WithAllowMissing) are NaN.
 type Samples struct {
-	Source     string            // file name, for messages
-	Time       []float64         // seconds; absolute times as Unix seconds
-	X, Y, Z    []float64         // metres, local east/north/up; nil when the log has no positions (base stations)
-	Bx, By, Bz []float64         // nanotesla, east/north/up (or sensor frame when Frame == FrameSensor)
-	Group      []string          // nil when absent
-	Temp       []float64         // nil when absent
-	Roll       []float64         // degrees, nil when absent
-	Pitch, Yaw []float64         // degrees, nil when absent
-	Qw, Qx     []float64         // attitude quaternion, nil when absent
-	Qy, Qz     []float64         // attitude quaternion, nil when absent
-	F          []float64         // scalar total field, nT (IAGA-2002 F); nil when absent
-	Current    []float64         // a conductor's current, A (a current record, WithCurrentRecord); nil when absent
-	Frame      Frame             // FrameENU (default) or FrameSensor
-	Origin     *Geodetic         // non-nil when positions were converted from WGS84 lat/lon/height
-	Meta       map[string]string // e.g. IAGA-2002 header fields ("station_name", "geodetic_latitude", ...)
+	Source     string    // file name, for messages
+	Time       []float64 // seconds; absolute times as Unix seconds
+	X, Y, Z    []float64 // metres, local east/north/up; nil when the log has no positions (base stations)
+	Bx, By, Bz []float64 // nanotesla, east/north/up (or sensor frame when Frame == FrameSensor)
+	Group      []string  // nil when absent
+	Temp       []float64 // nil when absent
+	Roll       []float64 // degrees, nil when absent
+	Pitch, Yaw []float64 // degrees, nil when absent
+	Qw, Qx     []float64 // attitude quaternion, nil when absent
+	Qy, Qz     []float64 // attitude quaternion, nil when absent
+	F          []float64 // scalar total field, nT (IAGA-2002 F); nil when absent
+	Current    []float64 // a conductor's current, A (a current record, WithCurrentRecord); nil when absent
+	// SigmaPlan and SigmaUp are each reading's own one-sigma position
+	// uncertainty, m (ColSigmaPlan, ColSigmaUp: a receiver's accuracy
+	// columns); nil when absent, NaN where a row leaves it empty.
+	SigmaPlan, SigmaUp []float64
+	Frame              Frame             // FrameENU (default) or FrameSensor
+	Origin             *Geodetic         // non-nil when positions were converted from WGS84 lat/lon/height
+	Meta               map[string]string // e.g. IAGA-2002 header fields ("station_name", "geodetic_latitude", ...)
 	// NoTime: the log has no time column (read with WithTimeOptional);
 	// Time is NaN.
 	NoTime bool
@@ -109,6 +113,10 @@ func (s *Samples) column(c int) *[]float64 {
 		return &s.F
 	case cCurrent:
 		return &s.Current
+	case cSigmaPlan:
+		return &s.SigmaPlan
+	case cSigmaUp:
+		return &s.SigmaUp
 	}
 	return nil
 }

@@ -70,6 +70,12 @@ const positionStep = 1e-3
 // each reading's variance.
 const PositionSigmaNote = "position uncertainty in the reading variances"
 
+// PositionSigmaShortNote is in the PositionSigmaNote of a fit whose
+// readings miss it by over positionRatioHigh times the variance the noise
+// and the positions explain: without it that whole variance holds the
+// misfit (report judges such a fit's misfit against it).
+const PositionSigmaShortNote = "the position sigmas may be too small, or the model misses"
+
 // PositionSystematicNote ends the note of a fit with position sigmas whose
 // residuals are correlated from reading to reading (SerialNotePrefix).
 const PositionSystematicNote = "the residuals are correlated from reading to reading: position errors that are not independent from reading to reading (a shifted traverse, a drift, a chainage that stretches) are not this model, and the position sigmas neither cover nor mend them; check the positioning against marks"
@@ -82,6 +88,74 @@ const PositionSigmaRobustNote = "position sigmas not used with robust (Huber) we
 // uncertainty.
 func (s *Settings) positioned() bool {
 	return s.PositionSigmaPlan > 0 || s.PositionSigmaUp > 0
+}
+
+// positioned reports whether the settings or the problem's readings
+// (Problem.PositionSigmas) give the positions an uncertainty.
+func (f *fitter) positioned() bool {
+	if f.set.positioned() {
+		return true
+	}
+	for _, v := range f.prob.PositionSigmas {
+		if v[0] > 0 || v[1] > 0 {
+			return true
+		}
+	}
+	return false
+}
+
+// positionSigmas returns the position sigmas of each of the n readings,
+// m, east, north and up: the problem's own (Problem.PositionSigmas), each
+// no smaller than the settings' (a floor; NaN, not logged, takes it),
+// else the settings' alike for every reading.
+func (f *fitter) positionSigmas(n int) ([][3]float64, error) {
+	plan, up := f.set.PositionSigmaPlan, f.set.PositionSigmaUp
+	own := f.prob.PositionSigmas
+	if own != nil && len(own) != n {
+		return nil, fmt.Errorf("inverse: %d readings but %d position sigmas", n, len(own))
+	}
+	sig := make([][3]float64, n)
+	for i := range sig {
+		p, u := plan, up
+		if own != nil {
+			if v := own[i][0]; v > p {
+				p = v
+			}
+			if v := own[i][1]; v > u {
+				u = v
+			}
+		}
+		sig[i] = [3]float64{p, p, u}
+	}
+	return sig, nil
+}
+
+// uniformSigmas returns the sigmas plan, plan, up for each of n readings.
+func uniformSigmas(n int, plan, up float64) [][3]float64 {
+	sig := make([][3]float64, n)
+	for i := range sig {
+		sig[i] = [3]float64{plan, plan, up}
+	}
+	return sig
+}
+
+// sigmaSpan says the range of one axis's sigmas over the readings (j 0
+// across the plan, 2 in height), each times scale, for a note: "0.3 m",
+// or "0.02 to 0.4 m (median 0.02 m)".
+func sigmaSpan(sig [][3]float64, j int, scale float64) string {
+	v := make([]float64, len(sig))
+	for i, s := range sig {
+		v[i] = s[j] * scale
+	}
+	slices.Sort(v)
+	if len(v) == 0 {
+		return "0 m"
+	}
+	lo, hi, med := v[0], v[len(v)-1], v[len(v)/2]
+	if hi-lo <= 1e-3*hi {
+		return fmt.Sprintf("%.3g m", hi)
+	}
+	return fmt.Sprintf("%.3g to %.3g m (median %.3g m)", lo, hi, med)
 }
 
 // positionParts are the terms of positionVariance at the position sigmas
@@ -159,7 +233,7 @@ func (pp *positionParts) scaled(tp, tu float64) (g2, bias []float64, grad [][3]f
 // gradient times s, each axis's share of the first term, and curv the
 // second term, for positionSandwich.
 func (sp *separable) positionVariance(x []float64, plan, up float64) (g2, bias []float64, grad [][3]float64, curv []float64, err error) {
-	pp, err := sp.positionParts(x, plan, up)
+	pp, err := sp.positionParts(x, uniformSigmas(len(sp.pts), plan, up))
 	if err != nil {
 		return nil, nil, nil, nil, err
 	}
@@ -168,15 +242,30 @@ func (sp *separable) positionVariance(x []float64, plan, up float64) (g2, bias [
 }
 
 // positionParts returns the terms of positionVariance at the fit x for
-// the sigmas plan and up.
-func (sp *separable) positionParts(x []float64, plan, up float64) (*positionParts, error) {
+// the sigmas sig of each reading (east, north, up; the readings' own,
+// Problem.PositionSigmas, or the settings' alike for all).
+func (sp *separable) positionParts(x []float64, sigs [][3]float64) (*positionParts, error) {
 	if err := sp.evaluate(x); err != nil {
 		return nil, err
 	}
 	m, nr := sp.m, sp.nrhs
 	n := m * nr
+	if len(sigs)*3 != m {
+		return nil, fmt.Errorf("inverse: %d position sigmas for %d readings", len(sigs), m/3)
+	}
 	h := positionStep
-	sig := [3]float64{plan, plan, up}
+	// sig: whether any reading has a sigma on the axis (1), else 0;
+	// each element's own is sigs of its reading (element i: row i/nr,
+	// reading i/nr/3).
+	var sig [3]float64
+	for _, s := range sigs {
+		for j := range 3 {
+			if s[j] > 0 {
+				sig[j] = 1
+			}
+		}
+	}
+	of := func(i, j int) float64 { return sigs[i/nr/3][j] }
 	at := func(d [3]float64) ([]float64, error) {
 		out := make([]float64, n)
 		return out, sp.modelShifted(d, out)
@@ -208,8 +297,9 @@ func (sp *separable) positionParts(x []float64, plan, up float64) (*positionPart
 			continue
 		}
 		for i := range n {
-			pp.g[i][j] = (fp[j][i] - fm[j][i]) / (2 * h) * sig[j]
-			pp.h[i][j] = (fp[j][i] + fm[j][i] - 2*f0[i]) / (h * h) * sig[j] * sig[j]
+			s := of(i, j)
+			pp.g[i][j] = (fp[j][i] - fm[j][i]) / (2 * h) * s
+			pp.h[i][j] = (fp[j][i] + fm[j][i] - 2*f0[i]) / (h * h) * s * s
 		}
 		for k := j + 1; k < 3; k, pair = k+1, pair+1 {
 			if !(sig[k] > 0) {
@@ -228,7 +318,7 @@ func (sp *separable) positionParts(x []float64, plan, up float64) (*positionPart
 			}
 			for i := range n {
 				// Squared once in at: the two terms jk and kj of the sum.
-				pp.x[i][pair] = (dpp[i] - dpm[i] - dmp[i] + dmm[i]) / (4 * h * h) * sig[j] * sig[k]
+				pp.x[i][pair] = (dpp[i] - dpm[i] - dmp[i] + dmm[i]) / (4 * h * h) * of(i, j) * of(i, k)
 			}
 		}
 	}
@@ -292,12 +382,21 @@ func (sp *separable) modelShifted(d [3]float64, out []float64) error {
 // weighted fit as for any weights, its covariance from positionSandwich.
 // It returns the note for the Result.
 func (f *fitter) positionWeights(c *candidate) (string, error) {
-	plan, up := f.set.PositionSigmaPlan, f.set.PositionSigmaUp
 	sp := c.sp
 	n, k := c.counts()
 	dof := n - k
 	if dof <= 0 {
 		return "", nil
+	}
+	sigs, err := f.positionSigmas(len(sp.pts))
+	if err != nil {
+		return "", err
+	}
+	// plan, up: the largest over the readings, for the note and to say
+	// which axes carry a sigma.
+	var plan, up float64
+	for _, s := range sigs {
+		plan, up = max(plan, s[0]), max(up, s[2])
 	}
 	// The reading noise: the given Problem.Sigma, else the one the
 	// residuals bear beside the positions' share (positionScale), but no
@@ -340,7 +439,7 @@ func (f *fitter) positionWeights(c *candidate) (string, error) {
 	for rounds < positionRounds {
 		rounds++
 		var err error
-		if pp, err = sp.positionParts(c.x, plan, up); err != nil {
+		if pp, err = sp.positionParts(c.x, sigs); err != nil {
 			return "", err
 		}
 		saved := sp.w
@@ -374,7 +473,7 @@ func (f *fitter) positionWeights(c *candidate) (string, error) {
 		}
 	}
 	// The terms at the fit, for the covariance (positionSandwich).
-	pp, err := sp.positionParts(c.x, plan, up)
+	pp, err = sp.positionParts(c.x, sigs)
 	if err != nil {
 		return "", err
 	}
@@ -385,7 +484,17 @@ func (f *fitter) positionWeights(c *candidate) (string, error) {
 	}
 	note := fmt.Sprintf("%s: %.3g m across the plan, %.3g m in height", PositionSigmaNote, plan, up)
 	hp, hu := plan*math.Sqrt(tp), up*math.Sqrt(tu)
-	if hp < 0.95*plan || hu < 0.95*up {
+	if f.prob.PositionSigmas != nil {
+		// Per reading, from the log's columns: their range, and the
+		// flag's as a floor.
+		note = fmt.Sprintf("%s: each reading's own, from the log's position sigma columns: %s across the plan, %s in height", PositionSigmaNote, sigmaSpan(sigs, 0, 1), sigmaSpan(sigs, 2, 1))
+		if f.set.positioned() {
+			note += fmt.Sprintf(", none below the %.3g m and %.3g m given for the run", f.set.PositionSigmaPlan, f.set.PositionSigmaUp)
+		}
+		if hp < 0.95*plan || hu < 0.95*up {
+			note += fmt.Sprintf("; the residuals bear %.2g and %.2g times these, taken for the weights and the mean correction (a larger value taken as it stood would over-correct the depths)", math.Sqrt(tp), math.Sqrt(tu))
+		}
+	} else if hp < 0.95*plan || hu < 0.95*up {
 		note += fmt.Sprintf(" given, of which the residuals bear %.2g m and %.2g m, taken for the weights and the mean correction (a larger value taken as it stood would over-correct the depths)", hp, hu)
 	}
 	note += fmt.Sprintf(" (effective variance, %d rounds)", rounds)
@@ -398,7 +507,7 @@ func (f *fitter) positionWeights(c *candidate) (string, error) {
 		if hp < 0.95*plan || hu < 0.95*up {
 			what = "the position scatter taken"
 		}
-		note += fmt.Sprintf("; the readings miss the fit by %.2g times what the noise and %s explain: the position sigmas may be too small, or the model misses, and the uncertainties are widened by that ratio", math.Sqrt(k), what)
+		note += fmt.Sprintf("; the readings miss the fit by %.2g times what the noise and %s explain: %s, and the uncertainties are widened by that ratio", math.Sqrt(k), what, PositionSigmaShortNote)
 	}
 	return note, nil
 }

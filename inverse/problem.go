@@ -47,6 +47,20 @@ type Problem struct {
 	// NaN for none). Along a single traverse the automatic count then checks
 	// for a current changing in time while it was walked (CurrentRampNote).
 	Times []float64
+	// PositionSigmas, when not nil, gives each reading's own one-sigma
+	// position uncertainty, m: [0] across the plan (east and north, each),
+	// [1] in height, as a positioned survey logs it fix by fix (a
+	// receiver's horizontal and vertical accuracy, 0.02 m with RTK fixed,
+	// 0.5 m float; ingest's sigma_plan and sigma_up columns). It enters
+	// each reading's variance as Settings.PositionSigmaPlan and
+	// PositionSigmaUp do (positionWeights), reading by reading, and like
+	// them as an upper bound: the residuals may shrink all readings'
+	// position variances by one factor per axis (positionScale), the
+	// ratio between readings kept. With the settings' sigmas given too,
+	// each reading takes the larger of its own and the settings' (the
+	// settings a floor). NaN (not logged for that reading) takes the
+	// settings' value, 0 without them.
+	PositionSigmas [][2]float64
 }
 
 // Subset returns a problem holding the readings i of p for which keep(i)
@@ -74,6 +88,9 @@ func (p *Problem) Subset(keep func(i int) bool) *Problem {
 		}
 		if len(p.Times) == len(p.Points) {
 			q.Times = append(q.Times, p.Times[i])
+		}
+		if len(p.PositionSigmas) == len(p.Points) {
+			q.PositionSigmas = append(q.PositionSigmas, p.PositionSigmas[i])
 		}
 	}
 	return q
@@ -104,6 +121,16 @@ func (p *Problem) validate() error {
 	for i, v := range p.Scale {
 		if !(v > 0) || math.IsInf(v, 0) {
 			return fmt.Errorf("inverse: reading %d: scale factor %v must be finite and positive", i, v)
+		}
+	}
+	if p.PositionSigmas != nil && len(p.PositionSigmas) != n {
+		return fmt.Errorf("inverse: %d points but %d position sigmas", n, len(p.PositionSigmas))
+	}
+	for i, v := range p.PositionSigmas {
+		for j, s := range v {
+			if s < 0 || math.IsInf(s, 0) {
+				return fmt.Errorf("inverse: reading %d: position sigma %s %v must be finite and not negative (NaN for none)", i, [2]string{"across the plan", "in height"}[j], s)
+			}
 		}
 	}
 	if p.allFinite() {

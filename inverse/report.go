@@ -1092,7 +1092,7 @@ func (f *fitter) report(c *candidate, scores []ModelScore) (*Result, error) {
 	// whole variance (positionWeights) before it is summarised; the count
 	// was chosen as without it.
 	var posNote string
-	if f.set.positioned() {
+	if f.positioned() {
 		if f.set.Robust {
 			posNote = PositionSigmaRobustNote
 		} else {

@@ -52,19 +52,7 @@ func aboveFit(f *Fit, measured float64, ac bool) *aboveLine {
 		z0 += r[2]
 	}
 	z0 /= float64(len(p.Points))
-	q := &inverse.Problem{Sigma: p.Sigma, Scale: p.Scale, Times: p.Times}
-	for _, r := range p.Points {
-		q.Points = append(q.Points, [3]float64{r[0], r[1], 2*z0 - r[2]})
-	}
-	for _, b := range p.Fields {
-		q.Fields = append(q.Fields, [3]float64{-b[0], -b[1], b[2]})
-	}
-	for _, b := range p.Phasors {
-		q.Phasors = append(q.Phasors, [3]complex128{-b[0], -b[1], b[2]})
-	}
-	for _, t := range p.Travel {
-		q.Travel = append(q.Travel, [3]float64{t[0], t[1], -t[2]})
-	}
+	q := mirrored(p, z0)
 	var set inverse.Settings
 	if f.Settings != nil {
 		set = *f.Settings
@@ -158,4 +146,24 @@ func aboveExplains(fits []Fit, misses []misfit) (*keyedAbove, int) {
 		return nil, 0
 	}
 	return first, k
+}
+
+// mirrored returns p's readings mirrored in the height z0: the points
+// reflected, Bx and By negated (a line above the sensors turned into its
+// image below them), the travel's vertical turned.
+func mirrored(p *inverse.Problem, z0 float64) *inverse.Problem {
+	q := &inverse.Problem{Sigma: p.Sigma, Scale: p.Scale, Times: p.Times}
+	for _, r := range p.Points {
+		q.Points = append(q.Points, [3]float64{r[0], r[1], 2*z0 - r[2]})
+	}
+	for _, b := range p.Fields {
+		q.Fields = append(q.Fields, [3]float64{-b[0], -b[1], b[2]})
+	}
+	for _, b := range p.Phasors {
+		q.Phasors = append(q.Phasors, [3]complex128{-b[0], -b[1], b[2]})
+	}
+	for _, t := range p.Travel {
+		q.Travel = append(q.Travel, [3]float64{t[0], t[1], -t[2]})
+	}
+	return q
 }

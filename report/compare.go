@@ -63,6 +63,8 @@ type Comparison struct {
 	New      string   `json:"new"`
 	// Mode is the signal mode of both, dc or ac.
 	Mode string `json:"mode"`
+	// FrequencyHz is the AC frequency both were demodulated at; 0 for DC.
+	FrequencyHz float64 `json:"frequency_hz,omitempty"`
 	// DepthQuantity is "cover" when both give the cover (the ground
 	// known), else "depth" (below the reference of depth_reference, the
 	// sensors unless a ground was given): a changed sensor height then
@@ -82,6 +84,16 @@ type Comparison struct {
 	Steps      []StepComparison      `json:"steps"`
 	Changes    []Change              `json:"changes"`
 	Matched    int                   `json:"matched_stations"`
+	// PoorFits counts the matched stations whose group's fit locate
+	// called poor, ambiguous or failed in OLD or NEW (groups[].problem,
+	// or not ok): they are left out of every ratio's level and step
+	// (StationChange.PoorFit), and their own changes are doubtful.
+	// Found in review: a NEW survey whose 13 fits were all poor and
+	// biased read as a 2% supply drop at 44 sigma with no word.
+	PoorFits int `json:"poor_fit_stations,omitempty"`
+	// oldPoor and newPoor are the keys of each side's groups whose fit
+	// is not sound.
+	oldPoor, newPoor map[string]bool
 }
 
 // ConductorComparison compares one conductor found in both surveys.
@@ -95,15 +107,55 @@ type ConductorComparison struct {
 	OldOnly           []string        `json:"old_only_stations,omitempty"`
 	NewOnly           []string        `json:"new_only_stations,omitempty"`
 	Ratio             *RatioProfile   `json:"ratio,omitempty"`
+	// DepthOffset is the change of cover (or depth) common to the matched
+	// stations, when there are three or more (see DepthOffset).
+	DepthOffset *DepthOffset `json:"depth_offset,omitempty"`
+	// Between are NEW's stations without a partner that lie between two
+	// of OLD's used stations (a closer spacing, or an offset walk),
+	// compared with OLD interpolated linearly along OLD's chainage
+	// (OldKey names both of OLD's stations, "T06-T07"; Interpolated is
+	// true). Their current is not flagged (a step of the ratio or a
+	// current-step finding says that); their cover is, as a matched
+	// station's.
+	Between []StationChange `json:"new_stations_between_old,omitempty"`
+	// NewChainageOffset is OLD's chainage at NEW's chainage 0, m (NEW's
+	// chainage plus it is OLD's at one place; with NewChainageReversed,
+	// OLD's is it less NEW's): NEW's stations are placed on OLD's
+	// chainage by projecting their plan positions onto OLD's route, and
+	// this is the median of what that gives. Absent with fewer than two
+	// of NEW's stations near OLD's route.
+	NewChainageOffset   *float64 `json:"new_chainage_offset_m,omitempty"`
+	NewChainageReversed bool     `json:"new_chainage_reversed,omitempty"`
+}
+
+// DepthOffset is the change of cover (or depth) that the matched stations
+// share: the weighted mean of the stations whose change agrees with the
+// median change (within the sigmas, or the practical threshold), its
+// sigma widened by their scatter. A sensor height left out of one survey,
+// entered wrongly in one, or a ground level given differently moves every
+// depth by one amount; so does a whole route re-graded. Applied is true
+// when it is beyond both thresholds (--sigmas and --min-cover-change) and
+// at least half the stations agree with it: the stations' changes are
+// then measured beyond it and it is reported once.
+type DepthOffset struct {
+	Offset   float64 `json:"offset_m"`
+	Sigma    float64 `json:"offset_sigma_m"`
+	Stations int     `json:"stations"`
+	Of       int     `json:"of_stations"`
+	Applied  bool    `json:"applied"`
 }
 
 // StationChange is one station matched in both surveys. Sigmas are one
 // standard deviation; a change's is both surveys' in quadrature.
 type StationChange struct {
-	OldKey        string  `json:"old_key"`
-	NewKey        string  `json:"new_key"`
-	Chainage      float64 `json:"chainage_m"`
-	NewChainage   float64 `json:"new_chainage_m"`
+	OldKey      string  `json:"old_key"`
+	NewKey      string  `json:"new_key"`
+	Chainage    float64 `json:"chainage_m"`
+	NewChainage float64 `json:"new_chainage_m"`
+	// NewOnOld is NEW's station's place on OLD's chainage: its plan
+	// position projected onto OLD's route, m. Chainage is OLD's station's
+	// (for one of Between, this place).
+	NewOnOld      float64 `json:"new_on_old_chainage_m"`
 	Separation    float64 `json:"separation_m"`
 	OldCurrent    float64 `json:"old_current_a"`
 	OldCurrentSig float64 `json:"old_current_sigma_a"`
@@ -130,18 +182,45 @@ type StationChange struct {
 	CoverChange      *float64 `json:"cover_change_m,omitempty"`
 	CoverSigma       *float64 `json:"cover_change_sigma_m,omitempty"`
 	CoverZ           *float64 `json:"cover_z,omitempty"`
-	CoverFlag        bool     `json:"cover_flag"`
+	// CoverBeyondOffset is the change of cover beyond the conductor's
+	// depth offset, with its sigma and z, when the offset is applied; the
+	// cover flag is then on it.
+	CoverBeyondOffset      *float64 `json:"cover_change_beyond_offset_m,omitempty"`
+	CoverBeyondOffsetSigma *float64 `json:"cover_change_beyond_offset_sigma_m,omitempty"`
+	CoverBeyondOffsetZ     *float64 `json:"cover_change_beyond_offset_z,omitempty"`
+	CoverFlag              bool     `json:"cover_flag"`
+	// Interpolated is true for one of ConductorComparison.Between: OLD's
+	// values are interpolated between the two stations OldKey names.
+	Interpolated bool `json:"old_interpolated,omitempty"`
 	// NowShallow is true when NEW's cover is under the minimum cover and
 	// OLD's was not.
 	NowShallow bool `json:"now_under_min_cover,omitempty"`
+	// PoorFit names the side(s) whose group's fit here is not sound
+	// ("OLD", "NEW" or "both"; Comparison.PoorFits): the station is then
+	// left out of the ratio's level and steps, and its changes are
+	// doubtful. Empty when both are sound.
+	PoorFit string `json:"poor_fit,omitempty"`
 }
 
 // RatioProfile is the test of NEW/OLD current along a conductor for one
-// factor: Level is the weighted mean ratio of the stations that agree
-// with the median ratio, LevelApplied whether it differs from 1 beyond
-// both thresholds (the station changes are then measured beyond it), and
-// Step the most significant single step in the ratio, when it is beyond
-// both thresholds: a loss that changed between the surveys.
+// factor: Level is the supply's factor, LevelApplied whether it differs
+// from 1 beyond both thresholds (the station changes are then measured
+// beyond it), and Step the most significant single step in the ratio,
+// when it is beyond both thresholds: a loss that changed between the
+// surveys.
+//
+// Without a step Level is the weighted mean ratio of the stations that
+// agree with the median ratio (LevelFrom "all"). With a step the two
+// sides read two factors, and the supply's is the one on the side the
+// current flows from: past a new loss every station reads the factor
+// less the loss, and a median would take whichever side has more
+// stations. A DC current is signed along increasing chainage, so its sign
+// tells the side (LevelFrom "upstream": the step's Before side for a
+// current flowing toward increasing chainage, its After side otherwise).
+// An AC magnitude, or a DC current of no clear sign, does not
+// (LevelFrom "unknown"): Level is then the step's Before side, but
+// neither side is chosen: each station is measured against its own
+// side's reading (SideLevels), and both readings are stated.
 type RatioProfile struct {
 	Level        float64    `json:"level"`
 	LevelSigma   float64    `json:"level_sigma"`
@@ -151,10 +230,42 @@ type RatioProfile struct {
 	Dof          int        `json:"dof"`
 	Constant     bool       `json:"constant"`
 	Step         *RatioStep `json:"step,omitempty"`
+	// LevelFrom is "all", "upstream" or "unknown" (see above).
+	LevelFrom string `json:"level_from,omitempty"`
+	// SideLevels is true when each station's change is measured against
+	// its own side of the step (LevelFrom "unknown").
+	SideLevels bool `json:"level_by_side,omitempty"`
+	// MedianLevel is the weighted mean ratio of the stations that agree
+	// with the median ratio, whatever LevelFrom says: the majority's
+	// reading, which with a step is not the supply's factor.
+	MedianLevel      float64 `json:"median_level,omitempty"`
+	MedianLevelSigma float64 `json:"median_level_sigma,omitempty"`
+}
+
+// levelAt returns the factor a station at OLD chainage ch is measured
+// against, its sigma and whether it differs from 1 (beyond both
+// thresholds).
+func (p *RatioProfile) levelAt(ch float64) (float64, float64, bool) {
+	if p == nil {
+		return 1, 0, false
+	}
+	if p.SideLevels && p.Step != nil {
+		if ch > p.Step.boundary() {
+			return p.Step.After, p.Step.AfterSigma, p.Step.afterApplied
+		}
+		return p.Step.Before, p.Step.BeforeSigma, p.Step.beforeApplied
+	}
+	return p.Level, p.LevelSigma, p.LevelApplied
 }
 
 // RatioStep is a step in the ratio profile between two successive matched
-// stations (OLD's keys and chainages).
+// stations (OLD's keys). Its chainages are OLD's and bracket the step with
+// both walks' stations: ChainageFrom is the farther along of the two
+// stations (OLD's and NEW's, placed on OLD's chainage) of the last pair
+// before it, ChainageTo the nearer of the first pair after it; a pair
+// beside the step whose ratio cannot tell the two sides apart (within
+// --sigmas of both) widens the bracket past it, and FromKey and ToKey
+// name the pairs that bound it.
 type RatioStep struct {
 	FromKey      string  `json:"from_key"`
 	ToKey        string  `json:"to_key"`
@@ -168,6 +279,29 @@ type RatioStep struct {
 	// CurrentA is the step of the ratio times OLD's median |current| past
 	// it: about the change of current it means there, A.
 	CurrentA float64 `json:"current_a"`
+	// Downstream is "after" or "before": the side the current flows to
+	// (the step's After side for a current flowing toward increasing
+	// chainage); empty when the flow's direction is not known (AC).
+	Downstream string `json:"downstream,omitempty"`
+	// CurrentAlongFlowA is the change the step means along the flow
+	// (downstream less upstream), negative for a loss; absent when the
+	// direction is not known.
+	CurrentAlongFlowA *float64 `json:"current_along_flow_a,omitempty"`
+
+	beforeApplied, afterApplied bool
+	// split is OLD's chainage between the two pairs the step falls
+	// between (hasSplit): the stations on either side of it are measured
+	// against that side's reading. Else the bracket's middle.
+	split    float64
+	hasSplit bool
+}
+
+// boundary is the chainage that parts the step's two sides.
+func (s *RatioStep) boundary() float64 {
+	if s.hasSplit {
+		return s.split
+	}
+	return (s.ChainageFrom + s.ChainageTo) / 2
 }
 
 // StepComparison compares the current-step findings of both surveys on
@@ -192,15 +326,41 @@ type StepComparison struct {
 
 // Change is one thing that changed, in words, for the list a crew reads:
 // Kind is current-change, cover-change, ratio-step, level-change,
-// step-new, step-gone, step-grown, step-shrunk, station-unmatched or
-// conductor-unmatched.
+// depth-offset, step-new, step-gone, step-grown, step-shrunk or
+// conductor-unmatched (station-unmatched, in earlier versions, is now a
+// note). Conductor is OLD's number (0 for a conductor of NEW's without a
+// partner: NewConductor names it). Groups holds OLD's keys then NEW's;
+// OldGroups and NewGroups part them. Value and Sigma are the change's
+// number in Unit: level-change NEW/OLD ("ratio", on the side the current
+// flows from; ValuePastStep the other side's when the direction is not
+// known), depth-offset and cover-change m, current-change, the step
+// kinds and ratio-step A (ratio-step: along the flow where it is known),
+// conductor-unmatched the conductor's median current, A. Stations are
+// OLD's stations whose own flag restates this change (past a ratio step,
+// every station reads the same loss) and so are not listed one by one.
+// Notes carry locate's doubts about a conductor without a partner.
 type Change struct {
-	Kind      string   `json:"kind"`
-	Conductor int      `json:"conductor"`
-	Chainage  *float64 `json:"chainage_m,omitempty"`
-	Groups    []string `json:"groups,omitempty"`
-	Message   string   `json:"message"`
+	Kind         string   `json:"kind"`
+	Conductor    int      `json:"conductor"`
+	NewConductor int      `json:"new_conductor,omitempty"`
+	Chainage     *float64 `json:"chainage_m,omitempty"`
+	ChainageFrom *float64 `json:"chainage_from_m,omitempty"`
+	ChainageTo   *float64 `json:"chainage_to_m,omitempty"`
+	Groups       []string `json:"groups,omitempty"`
+	OldGroups    []string `json:"old_groups,omitempty"`
+	NewGroups    []string `json:"new_groups,omitempty"`
+	Value        *float64 `json:"value,omitempty"`
+	Sigma        *float64 `json:"sigma,omitempty"`
+	ValuePast    *float64 `json:"value_past_step,omitempty"`
+	SigmaPast    *float64 `json:"sigma_past_step,omitempty"`
+	Unit         string   `json:"unit,omitempty"`
+	Stations     []string `json:"stations,omitempty"`
+	Notes        []string `json:"notes,omitempty"`
+	Message      string   `json:"message"`
 }
+
+// roundCh rounds a chainage to the centimetre for the list of changes.
+func roundCh(x float64) *float64 { v := math.Round(x*100) / 100; return &v }
 
 // CompareError is a refusal to compare: the inputs do not describe one
 // route in one frame.
@@ -225,6 +385,57 @@ func (s CompareSettings) filled() CompareSettings {
 type cstation struct {
 	st    *Station
 	point [3]float64
+	// on is the station's place on OLD's chainage (OLD's own chainage
+	// for OLD's stations; NEW's plan position projected onto OLD's route)
+	// and off its distance from that route in plan, m.
+	on, off float64
+}
+
+// onRoute projects the plan position p onto the polyline through os (OLD's
+// used stations in chainage order) and returns its place on OLD's
+// chainage and its distance from the line, m. Beyond the ends the first
+// and last segments are extended.
+func onRoute(os []cstation, p [3]float64) (ch, off float64) {
+	if len(os) == 0 {
+		return math.NaN(), math.Inf(1)
+	}
+	if len(os) == 1 {
+		a := os[0]
+		d := a.st.Direction
+		h := math.Hypot(d[0], d[1])
+		if h == 0 {
+			return a.st.Chainage, math.Hypot(p[0]-a.point[0], p[1]-a.point[1])
+		}
+		u := ((p[0]-a.point[0])*d[0] + (p[1]-a.point[1])*d[1]) / h
+		return a.st.Chainage + u, math.Abs((p[0]-a.point[0])*d[1]-(p[1]-a.point[1])*d[0]) / h
+	}
+	ch, off = math.NaN(), math.Inf(1)
+	for i := 1; i < len(os); i++ {
+		a, b := os[i-1], os[i]
+		ex, ny := b.point[0]-a.point[0], b.point[1]-a.point[1]
+		l2 := ex*ex + ny*ny
+		if l2 == 0 {
+			continue
+		}
+		t := ((p[0]-a.point[0])*ex + (p[1]-a.point[1])*ny) / l2
+		if i > 1 {
+			t = math.Max(t, 0)
+		}
+		if i < len(os)-1 {
+			t = math.Min(t, 1)
+		}
+		if d := math.Hypot(p[0]-(a.point[0]+t*ex), p[1]-(a.point[1]+t*ny)); d < off {
+			ch, off = a.st.Chainage+t*(b.st.Chainage-a.st.Chainage), d
+		}
+	}
+	if math.IsNaN(ch) { // every station at one point: the nearest's chainage
+		for _, a := range os {
+			if d := math.Hypot(p[0]-a.point[0], p[1]-a.point[1]); !(d >= off) {
+				ch, off = a.st.Chainage, d
+			}
+		}
+	}
+	return ch, off
 }
 
 // Compare compares NEW (newDoc, read from newName) with OLD. It refuses
@@ -258,10 +469,11 @@ func Compare(old, newDoc *Document, oldName, newName string, s CompareSettings) 
 	}
 	c := &Comparison{
 		Cautions: append([]string(nil), Cautions...), Kind: "survey-comparison",
-		Old: oldName, New: newName, Mode: old.Signal.Mode,
+		Old: oldName, New: newName, Mode: old.Signal.Mode, FrequencyHz: old.Signal.FrequencyHz,
 		MinCurrentChangeA: s.MinCurrentChange, MinCoverChangeM: s.MinCoverChange,
 		Sigmas: s.Sigmas, ToleranceM: s.Tolerance,
 		Conductors: []ConductorComparison{}, Steps: []StepComparison{}, Changes: []Change{},
+		oldPoor: poorGroups(old), newPoor: poorGroups(newDoc),
 	}
 	// NEW's positions in OLD's frame.
 	toOld := func(p [3]float64) [3]float64 { return p }
@@ -328,15 +540,15 @@ func Compare(old, newDoc *Document, oldName, newName string, s CompareSettings) 
 	for j, nt := range newDoc.Conductors {
 		if !usedNew[j] {
 			c.NewOnly = append(c.NewOnly, nt.Number)
-			c.Changes = append(c.Changes, Change{Kind: "conductor-unmatched", Conductor: 0,
-				Message: fmt.Sprintf("conductor %d of NEW (%.1f m from conductor 1) has no partner in OLD", nt.Number, nt.Offset)})
+			c.Changes = append(c.Changes, unmatchedNew(newDoc, &newDoc.Conductors[j]))
 		}
 	}
 	for k, p := range pairs {
 		cc, mapCh := compareRoute(p.o, p.n, toOld, p.byPla, old.Signal.Mode == SignalDC, c, s)
 		cc.Old, cc.New = p.oi, p.ni
 		if k == 0 && len(cc.Stations) == 0 {
-			return nil, refuse("no station of conductor 1 in NEW lies within %g m of one in OLD, along the route or in plan: not the same stretch of route, or not in one frame", s.Tolerance)
+			along, plan := nearestStations(p.o, p.n, toOld)
+			return nil, refuse("no station of conductor 1 in NEW lies within %g m (--tolerance) of one in OLD, along the route or in plan: the nearest lie %.2f m apart in plan (%.2f m along the route); if the traverses were walked that far from the first survey's, compare with --tolerance %s; else not the same stretch of route, or not in one frame", s.Tolerance, plan, along, strconv.FormatFloat(math.Ceil(plan+0.5), 'f', 0, 64))
 		}
 		c.Matched += len(cc.Stations)
 		c.Conductors = append(c.Conductors, cc)
@@ -346,8 +558,197 @@ func Compare(old, newDoc *Document, oldName, newName string, s CompareSettings) 
 		}
 		c.compareSteps(old, newDoc, oc, nc, p.oi, mapCh, cc, s)
 	}
+	c.poorNote()
 	c.listChanges()
 	return c, nil
+}
+
+// poorGroups returns the keys of d's groups whose fit is not sound: not
+// ok, or with a problem (poor, ambiguous).
+func poorGroups(d *Document) map[string]bool {
+	m := map[string]bool{}
+	for _, g := range d.Groups {
+		if !g.OK || g.Problem != "" {
+			m[g.Key] = true
+		}
+	}
+	return m
+}
+
+// poorNote counts the matched stations on a fit that is not sound
+// (Comparison.PoorFits) and says so in the notes.
+func (c *Comparison) poorNote() {
+	c.PoorFits = 0
+	nOld, nNew := 0, 0
+	for _, cc := range c.Conductors {
+		for _, st := range cc.Stations {
+			if st.PoorFit == "" {
+				continue
+			}
+			c.PoorFits++
+			if st.PoorFit != "NEW" {
+				nOld++
+			}
+			if st.PoorFit != "OLD" {
+				nNew++
+			}
+		}
+	}
+	if c.PoorFits == 0 {
+		return
+	}
+	c.Notes = append(c.Notes, fmt.Sprintf("%d of %d matched stations rest on a fit that locate called poor, ambiguous or failed (%d in OLD, %d in NEW; marked \"poor fit\"): a poor fit can be biased beyond its sigmas, so they are left out of the ratio NEW/OLD's level and steps, and their own changes of current and %s are doubtful; look at those groups' problems in the surveys' reports before reading a change there",
+		c.PoorFits, c.Matched, nOld, nNew, orDepth(c.DepthQuantity)))
+}
+
+// nearestStations returns the least separation of a used station of o
+// from one of n (NEW's points taken by toOld), along the route
+// (OLD's chainage, NEW's stations placed on it by plan position) and in
+// plan, m.
+func nearestStations(o, n *Route, toOld func([3]float64) [3]float64) (along, plan float64) {
+	along, plan = math.Inf(1), math.Inf(1)
+	var os []cstation
+	for i := range o.Stations {
+		if o.Stations[i].Used {
+			os = append(os, cstation{st: &o.Stations[i], point: o.Stations[i].Point})
+		}
+	}
+	for _, a := range os {
+		for _, b := range n.Stations {
+			if !b.Used {
+				continue
+			}
+			q := toOld(b.Point)
+			on, _ := onRoute(os, q)
+			along = math.Min(along, math.Abs(a.st.Chainage-on))
+			plan = math.Min(plan, math.Hypot(a.point[0]-q[0], a.point[1]-q[1]))
+		}
+	}
+	return along, plan
+}
+
+// unmatchedNew words a conductor of NEW's without a partner in OLD: its
+// median current (and share of conductor 1's), its median cover or depth,
+// and locate's doubts about it (a line above the sensors or the ground,
+// a weak line, a current not clearly different from zero), so that a
+// line a forced --count invented is not read as a new conductor.
+func unmatchedNew(d *Document, t *Track) Change {
+	var cur, c1, cov []float64
+	used := 0
+	for _, st := range t.Route.Stations {
+		if !st.Used {
+			continue
+		}
+		used++
+		cur = append(cur, math.Abs(st.Current))
+		if st.Cover != nil {
+			cov = append(cov, *st.Cover)
+		}
+	}
+	if d.Route != nil {
+		for _, st := range d.Route.Stations {
+			if st.Used {
+				c1 = append(c1, math.Abs(st.Current))
+			}
+		}
+	}
+	ch := Change{Kind: "conductor-unmatched", NewConductor: t.Number, Unit: "A"}
+	msg := fmt.Sprintf("conductor %d of NEW (%.1f m from conductor 1) has no partner in OLD", t.Number, t.Offset)
+	if len(cur) > 0 {
+		m := cmpMedian(cur)
+		ch.Value = ptr(m)
+		msg += fmt.Sprintf(": %s A at the median of its %d stations", strconv.FormatFloat(m, 'g', 3, 64), used)
+		if m1 := cmpMedian(c1); m1 > 0 {
+			msg += fmt.Sprintf(" (%s%% of conductor 1's %s A)", strconv.FormatFloat(100*m/m1, 'g', 2, 64), strconv.FormatFloat(m1, 'g', 3, 64))
+		}
+	}
+	if len(cov) > 0 {
+		msg += fmt.Sprintf(", cover %s m", strconv.FormatFloat(cmpMedian(cov), 'f', 2, 64))
+	}
+	// locate's doubts, counted over the sources that make it up.
+	kinds := []struct{ key, words string }{
+		{"not a buried conductor", "its line passes above the sensors (not a buried conductor)"},
+		{"weak line", "a weak line that may absorb departures from the model rather than mark a conductor"},
+		{"not significantly different from zero", "a current not clearly different from zero"},
+	}
+	count := make([]int, len(kinds))
+	first := make([]string, len(kinds))
+	for _, g := range d.Groups {
+		for _, src := range g.Sources {
+			if src.Conductor != t.Number {
+				continue
+			}
+			for k, kd := range kinds {
+				for _, n := range src.Notes {
+					if strings.Contains(n, kd.key) {
+						count[k]++
+						if first[k] == "" {
+							first[k] = g.Key + ": " + n
+						}
+						break
+					}
+				}
+			}
+		}
+	}
+	var doubts []string
+	for k, kd := range kinds {
+		if count[k] > 0 {
+			doubts = append(doubts, fmt.Sprintf("%s at %d of its %d stations", kd.words, count[k], used))
+			ch.Notes = append(ch.Notes, first[k])
+		}
+	}
+	if len(cov) > 0 && cmpMedian(cov) < 0 {
+		doubts = append(doubts, "a median cover above the ground")
+	}
+	if len(doubts) > 0 {
+		msg += "; locate doubts it: " + strings.Join(doubts, "; ") + ": more likely a line the fit added (a forced --count) than a new conductor"
+	}
+	ch.Message = msg
+	return ch
+}
+
+// depthOffset fits the change of cover common to the stations (see
+// DepthOffset); nil for fewer than three stations with a change.
+func depthOffset(st []StationChange, s CompareSettings) *DepthOffset {
+	var d, ds []float64
+	for _, x := range st {
+		if x.CoverChange != nil && *x.CoverSigma > 0 {
+			d, ds = append(d, *x.CoverChange), append(ds, *x.CoverSigma)
+		}
+	}
+	if len(d) < 3 {
+		return nil
+	}
+	med := cmpMedian(d)
+	var id, ids []float64
+	for i := range d {
+		if math.Abs(d[i]-med) <= math.Max(s.Sigmas*ds[i], s.MinCoverChange/2) {
+			id, ids = append(id, d[i]), append(ids, ds[i])
+		}
+	}
+	if len(id) == 0 {
+		return nil
+	}
+	m, sm, chi2 := weightedMean(id, ids)
+	o := &DepthOffset{Offset: m, Sigma: inflated(sm, chi2, len(id)-1), Stations: len(id), Of: len(d)}
+	o.Applied = 2*len(id) >= len(d) && math.Abs(m) > s.Sigmas*o.Sigma && math.Abs(m) >= s.MinCoverChange
+	return o
+}
+
+// flagCover sets sc's cover flag: on its change beyond the depth offset
+// when one is applied.
+func flagCover(sc *StationChange, off *DepthOffset, s CompareSettings) {
+	if sc.CoverChange == nil {
+		return
+	}
+	d, sd := *sc.CoverChange, *sc.CoverSigma
+	if off != nil && off.Applied {
+		d -= off.Offset
+		sd = math.Hypot(sd, off.Sigma)
+		sc.CoverBeyondOffset, sc.CoverBeyondOffsetSigma, sc.CoverBeyondOffsetZ = ptr(d), ptr(sd), ptr(zOf(d, sd))
+	}
+	sc.CoverFlag = math.Abs(zOf(d, sd)) > s.Sigmas && math.Abs(d) >= s.MinCoverChange
 }
 
 func modeName(m string) string {
@@ -413,15 +814,47 @@ func compareRoute(o, n *Route, toOld func([3]float64) [3]float64, planOnly, dc b
 	var os, ns []cstation
 	for i := range o.Stations {
 		if o.Stations[i].Used {
-			os = append(os, cstation{&o.Stations[i], o.Stations[i].Point})
+			os = append(os, cstation{st: &o.Stations[i], point: o.Stations[i].Point})
 		}
 	}
 	for i := range n.Stations {
 		if n.Stations[i].Used {
-			ns = append(ns, cstation{&n.Stations[i], toOld(n.Stations[i].Point)})
+			ns = append(ns, cstation{st: &n.Stations[i], point: toOld(n.Stations[i].Point)})
 		}
 	}
+	// NEW's stations on OLD's chainage: their plan positions projected
+	// onto OLD's route. Two walks whose chainages start at different
+	// places (a re-walk's first traverse 1 m on) are paired, and their
+	// steps bracketed, on one chainage.
+	for i := range os {
+		os[i].on = os[i].st.Chainage
+	}
+	var cps []chainPair // NEW's own chainage and its place on OLD's, near OLD's route
+	for j := range ns {
+		ns[j].on, ns[j].off = onRoute(os, ns[j].point)
+		if ns[j].off <= s.Tolerance {
+			cps = append(cps, chainPair{ns[j].st.Chainage, ns[j].on})
+		}
+	}
+	sort.Slice(cps, func(a, b int) bool { return cps[a].n < cps[b].n })
+	cc := ConductorComparison{MatchedBy: "plan", Stations: []StationChange{}}
+	chDir, chOff := 1.0, math.NaN()
+	if len(cps) >= 2 {
+		chDir = dirOf(cps)
+		var offs []float64
+		for _, p := range cps {
+			offs = append(offs, p.o-chDir*p.n)
+		}
+		chOff = cmpMedian(offs)
+		cc.NewChainageOffset, cc.NewChainageReversed = ptr(math.Round(chOff*1000)/1000), chDir < 0
+	}
 	plan := func(a, b cstation) float64 { return math.Hypot(a.point[0]-b.point[0], a.point[1]-b.point[1]) }
+	// Distances are matched to the millimetre, so that a re-walk offset
+	// by just the tolerance (half a 4 m spacing, 2 m) pairs every station
+	// alike rather than as its fit's last digits fall; equal distances
+	// keep OLD's order, each of OLD's stations taking NEW's nearest after
+	// it first.
+	mm := func(x float64) float64 { return math.Round(x*1000) / 1000 }
 	match := func(dist func(a, b cstation) float64) [][2]int {
 		type cand struct {
 			i, j int
@@ -448,25 +881,36 @@ func compareRoute(o, n *Route, toOld func([3]float64) [3]float64, planOnly, dc b
 		sort.Slice(out, func(a, b int) bool { return os[out[a][0]].st.Chainage < os[out[b][0]].st.Chainage })
 		return out
 	}
-	cc := ConductorComparison{MatchedBy: "plan", Stations: []StationChange{}}
 	var m [][2]int
-	if !planOnly {
-		m = match(func(a, b cstation) float64 { return math.Abs(a.st.Chainage - b.st.Chainage) })
+	if !planOnly && chDir > 0 && mm(math.Abs(chOff)) <= s.Tolerance {
+		// Both walks measure chainage from about one place: paired along
+		// OLD's chainage, NEW's stations placed on it by plan position.
+		m = match(func(a, b cstation) float64 { return mm(math.Abs(a.on - b.on)) })
 		var sep []float64
 		for _, p := range m {
 			sep = append(sep, plan(os[p[0]], ns[p[1]]))
 		}
-		if len(m) > 0 && cmpMedian(sep) <= s.Tolerance {
+		if len(m) > 0 && mm(cmpMedian(sep)) <= s.Tolerance {
 			cc.MatchedBy = "chainage"
 		} else {
 			m = nil
 		}
 	}
 	if m == nil {
-		m = match(plan)
+		m = match(func(a, b cstation) float64 { return mm(plan(a, b)) })
 		if !planOnly && len(m) > 0 {
 			c.Notes = append(c.Notes, "conductor 1's stations were matched in plan: the two routes' chainages do not start at one place (or no station lies within the tolerance along them)")
 		}
+	}
+	if !planOnly && len(cps) >= 2 && (chDir < 0 || math.Abs(chOff) >= 0.05) {
+		how := fmt.Sprintf("NEW's chainage starts %.2f m along OLD's route (NEW's chainage + %.2f m is OLD's at one place)", chOff, chOff)
+		if chOff < 0 {
+			how = fmt.Sprintf("NEW's chainage starts %.2f m before OLD's (NEW's chainage - %.2f m is OLD's at one place)", -chOff, -chOff)
+		}
+		if chDir < 0 {
+			how = fmt.Sprintf("NEW's chainage runs against OLD's, from OLD's chainage %.2f m (%.2f m - NEW's chainage is OLD's at one place)", chOff, chOff)
+		}
+		c.Notes = append(c.Notes, how+": NEW's stations were placed on OLD's chainage by their plan positions, and every chainage shown is OLD's")
 	}
 	// OLD's current threshold.
 	var mags []float64
@@ -499,7 +943,7 @@ func compareRoute(o, n *Route, toOld func([3]float64) [3]float64, planOnly, dc b
 		matchedO[p[0]], matchedN[p[1]] = true, true
 		sc := StationChange{
 			OldKey: a.st.Key, NewKey: b.st.Key, Chainage: a.st.Chainage, NewChainage: b.st.Chainage,
-			Separation: plan(a, b),
+			NewOnOld: b.on, Separation: plan(a, b),
 			OldCurrent: a.st.Current, OldCurrentSig: a.st.CurrentSigma,
 			NewCurrent: sign * b.st.Current, NewCurrentSig: b.st.CurrentSigma,
 		}
@@ -514,24 +958,16 @@ func compareRoute(o, n *Route, toOld func([3]float64) [3]float64, planOnly, dc b
 			}
 			sc.Ratio, sc.RatioSigma = &r, &rs
 		}
-		var oc, ocs, nc, ncs *float64
-		switch c.DepthQuantity {
-		case "cover":
-			oc, ocs, nc, ncs = a.st.Cover, a.st.CoverSigma, b.st.Cover, b.st.CoverSigma
-		case "depth":
-			oc, ocs, nc, ncs = &a.st.Depth, &a.st.DepthSigma, &b.st.Depth, &b.st.DepthSigma
-		}
-		if oc != nil && nc != nil && ocs != nil && ncs != nil {
-			d := *nc - *oc
-			sd := math.Hypot(*ocs, *ncs)
-			z := zOf(d, sd)
-			sc.OldCover, sc.OldCoverSig = ptr(*oc), ptr(*ocs)
-			sc.NewCover, sc.NewCoverSig = ptr(*nc), ptr(*ncs)
-			sc.CoverChange, sc.CoverSigma, sc.CoverZ = &d, &sd, &z
-			sc.CoverFlag = math.Abs(z) > s.Sigmas && math.Abs(d) >= s.MinCoverChange
-			if c.DepthQuantity == "cover" && c.MinCoverM != nil && *nc < *c.MinCoverM && *oc >= *c.MinCoverM {
-				sc.NowShallow = true
-			}
+		oc, ocs := depthOf(a.st, c.DepthQuantity)
+		nc, ncs := depthOf(b.st, c.DepthQuantity)
+		setCover(&sc, oc, ocs, nc, ncs, c)
+		switch po, pn := c.oldPoor[a.st.Key], c.newPoor[b.st.Key]; {
+		case po && pn:
+			sc.PoorFit = "both"
+		case po:
+			sc.PoorFit = "OLD"
+		case pn:
+			sc.PoorFit = "NEW"
 		}
 		cc.Stations = append(cc.Stations, sc)
 	}
@@ -545,16 +981,15 @@ func compareRoute(o, n *Route, toOld func([3]float64) [3]float64, planOnly, dc b
 			cc.NewOnly = append(cc.NewOnly, x.st.Key)
 		}
 	}
-	cc.Ratio = ratioProfile(cc.Stations, medI, minI, s)
-	level := 1.0
-	levelSigma := 0.0
-	if cc.Ratio != nil && cc.Ratio.LevelApplied {
-		level, levelSigma = cc.Ratio.Level, cc.Ratio.LevelSigma
+	cc.DepthOffset = depthOffset(cc.Stations, s)
+	for i := range cc.Stations {
+		flagCover(&cc.Stations[i], cc.DepthOffset, s)
 	}
+	cc.Ratio = ratioProfile(cc.Stations, medI, minI, dc, s)
 	for i := range cc.Stations {
 		sc := &cc.Stations[i]
 		d, sd, z := sc.CurrentChange, sc.CurrentSigma, sc.CurrentZ
-		if level != 1 {
+		if level, levelSigma, ok := cc.Ratio.levelAt(sc.Chainage); ok {
 			d = sc.NewCurrent - level*sc.OldCurrent
 			sd = math.Sqrt(sq(sc.NewCurrentSig) + sq(level*sc.OldCurrentSig) + sq(sc.OldCurrent*levelSigma))
 			z = zOf(d, sd)
@@ -562,33 +997,96 @@ func compareRoute(o, n *Route, toOld func([3]float64) [3]float64, planOnly, dc b
 		}
 		sc.CurrentFlag = math.Abs(z) > s.Sigmas && math.Abs(d) >= minI
 	}
-	// NEW's chainage to OLD's: linear between matched stations, by the
-	// nearest pair's offset beyond them.
-	var cps []chainPair
-	for _, sc := range cc.Stations {
-		cps = append(cps, chainPair{sc.NewChainage, sc.Chainage})
+	// NEW's chainage to OLD's: linear between NEW's stations placed on
+	// OLD's chainage, by the nearest one's offset beyond them; where fewer
+	// than two lie near OLD's route, between the matched stations.
+	if len(cps) < 2 {
+		cps = nil
+		for _, sc := range cc.Stations {
+			cps = append(cps, chainPair{sc.NewChainage, sc.Chainage})
+		}
+		sort.Slice(cps, func(a, b int) bool { return cps[a].n < cps[b].n })
 	}
-	sort.Slice(cps, func(a, b int) bool { return cps[a].n < cps[b].n })
-	mapCh := func(x float64) float64 {
-		if len(cps) == 0 {
-			return x
-		}
-		if len(cps) == 1 || x <= cps[0].n {
-			return cps[0].o + (x-cps[0].n)*dirOf(cps)
-		}
-		for i := 1; i < len(cps); i++ {
-			if x <= cps[i].n {
-				a, b := cps[i-1], cps[i]
-				if b.n == a.n {
-					return a.o
+	mapCh := chainMap(cps)
+	// NEW's stations without a partner between two of OLD's: compared
+	// with OLD interpolated along its chainage (never beyond its ends).
+	// Not across a gap in OLD (a station left out): at most twice OLD's
+	// median spacing.
+	var gaps []float64
+	for i := 1; i < len(os); i++ {
+		gaps = append(gaps, os[i].st.Chainage-os[i-1].st.Chainage)
+	}
+	maxGap := 2 * cmpMedian(gaps)
+	if len(cps) >= 2 && len(gaps) > 0 {
+		for j, x := range ns {
+			if matchedN[j] {
+				continue
+			}
+			ch := x.on
+			if !(x.off <= s.Tolerance) {
+				ch = mapCh(x.st.Chainage)
+			}
+			for i := 1; i < len(os); i++ {
+				a, b := os[i-1].st, os[i].st
+				if !(a.Chainage <= ch && ch <= b.Chainage) || b.Chainage == a.Chainage || b.Chainage-a.Chainage > maxGap {
+					continue
 				}
-				return a.o + (x-a.n)*(b.o-a.o)/(b.n-a.n)
+				w := (ch - a.Chainage) / (b.Chainage - a.Chainage)
+				lerp := func(u, v float64) float64 { return u + w*(v-u) }
+				sc := StationChange{
+					OldKey: a.Key + "-" + b.Key, NewKey: x.st.Key, Chainage: ch, NewChainage: x.st.Chainage, NewOnOld: ch,
+					Separation: math.Min(ch-a.Chainage, b.Chainage-ch), Interpolated: true,
+					OldCurrent: lerp(a.Current, b.Current), OldCurrentSig: lerp(a.CurrentSigma, b.CurrentSigma),
+					NewCurrent: sign * x.st.Current, NewCurrentSig: x.st.CurrentSigma,
+				}
+				sc.CurrentChange = sc.NewCurrent - sc.OldCurrent
+				sc.CurrentSigma = math.Hypot(sc.OldCurrentSig, sc.NewCurrentSig)
+				sc.CurrentZ = zOf(sc.CurrentChange, sc.CurrentSigma)
+				oa, oas := depthOf(a, c.DepthQuantity)
+				ob, obs := depthOf(b, c.DepthQuantity)
+				nc, ncs := depthOf(x.st, c.DepthQuantity)
+				if oa != nil && ob != nil && oas != nil && obs != nil {
+					// The sigma interpolated too: the two stations'
+					// errors are not averaged down.
+					setCover(&sc, ptr(lerp(*oa, *ob)), ptr(lerp(*oas, *obs)), nc, ncs, c)
+					flagCover(&sc, cc.DepthOffset, s)
+				}
+				cc.Between = append(cc.Between, sc)
+				break
 			}
 		}
-		l := cps[len(cps)-1]
-		return l.o + (x-l.n)*dirOf(cps)
 	}
 	return cc, mapCh
+}
+
+// depthOf returns st's cover, or its depth, as q says, and its sigma
+// (nil when it has none).
+func depthOf(st *Station, q string) (*float64, *float64) {
+	switch q {
+	case "cover":
+		return st.Cover, st.CoverSigma
+	case "depth":
+		return &st.Depth, &st.DepthSigma
+	}
+	return nil, nil
+}
+
+// setCover sets sc's cover (or depth) of OLD and NEW, their change, its
+// sigma and z, and whether NEW's is now under the minimum cover; the flag
+// is set by flagCover, once the depth offset is known.
+func setCover(sc *StationChange, oc, ocs, nc, ncs *float64, c *Comparison) {
+	if oc == nil || nc == nil || ocs == nil || ncs == nil {
+		return
+	}
+	d := *nc - *oc
+	sd := math.Hypot(*ocs, *ncs)
+	z := zOf(d, sd)
+	sc.OldCover, sc.OldCoverSig = ptr(*oc), ptr(*ocs)
+	sc.NewCover, sc.NewCoverSig = ptr(*nc), ptr(*ncs)
+	sc.CoverChange, sc.CoverSigma, sc.CoverZ = &d, &sd, &z
+	if c.DepthQuantity == "cover" && c.MinCoverM != nil && *nc < *c.MinCoverM && *oc >= *c.MinCoverM {
+		sc.NowShallow = true
+	}
 }
 
 // chainPair is a matched station's chainage in NEW and in OLD.
@@ -640,12 +1138,14 @@ func inflated(sigma, chi2 float64, dof int) float64 {
 
 // ratioProfile tests the ratio NEW/OLD along the stations for one level
 // and a step (see RatioProfile). medI is OLD's median |current|, minI the
-// practical threshold of current.
-func ratioProfile(st []StationChange, medI, minI float64, s CompareSettings) *RatioProfile {
+// practical threshold of current; dc says OLD's currents are signed along
+// increasing chainage (the flow's direction known from their sign).
+func ratioProfile(st []StationChange, medI, minI float64, dc bool, s CompareSettings) *RatioProfile {
 	var idx []int
 	var r, rs []float64
 	for i, x := range st {
-		if x.Ratio != nil && *x.RatioSigma > 0 {
+		// A station on a poor fit is left out (Comparison.PoorFits).
+		if x.Ratio != nil && *x.RatioSigma > 0 && x.PoorFit == "" {
 			idx = append(idx, i)
 			r, rs = append(r, *x.Ratio), append(rs, *x.RatioSigma)
 		}
@@ -696,8 +1196,110 @@ func ratioProfile(st []StationChange, medI, minI float64, s CompareSettings) *Ra
 	if p.Step != nil && !(p.Step.Z > s.Sigmas && math.Abs(p.Step.CurrentA) >= minI) {
 		p.Step = nil
 	}
+	if p.Step != nil {
+		bracketStep(p.Step, st, idx, r, rs, s.Sigmas)
+	}
 	p.Constant = p.Step == nil
+	p.MedianLevel, p.MedianLevelSigma = p.Level, p.LevelSigma
+	p.LevelFrom = "all"
+	if p.Step == nil {
+		return p
+	}
+	// A step: the supply's factor is the side the current flows from.
+	stp := p.Step
+	applied := func(l, ls float64) bool { return math.Abs(l-1) > s.Sigmas*ls && math.Abs(l-1)*medI >= minI }
+	stp.beforeApplied, stp.afterApplied = applied(stp.Before, stp.BeforeSigma), applied(stp.After, stp.AfterSigma)
+	flow := 0
+	if dc {
+		// OLD's DC currents are signed along increasing chainage; the
+		// ratio's stations all have one beyond 3 sigma of zero. A sign
+		// that changes along them leaves the direction unknown.
+		var pos, neg int
+		for _, i := range idx {
+			if st[i].OldCurrent > 0 {
+				pos++
+			} else {
+				neg++
+			}
+		}
+		switch {
+		case neg == 0:
+			flow = 1
+		case pos == 0:
+			flow = -1
+		}
+	}
+	var beforeI, afterI []float64
+	for _, i := range idx {
+		if st[i].Chainage > stp.boundary() {
+			afterI = append(afterI, math.Abs(st[i].OldCurrent))
+		} else {
+			beforeI = append(beforeI, math.Abs(st[i].OldCurrent))
+		}
+	}
+	switch flow {
+	case 1:
+		p.LevelFrom = "upstream"
+		p.Level, p.LevelSigma, p.LevelApplied = stp.Before, stp.BeforeSigma, stp.beforeApplied
+		stp.Downstream = "after"
+		stp.CurrentAlongFlowA = ptr((stp.After - stp.Before) * cmpMedian(afterI))
+	case -1:
+		p.LevelFrom = "upstream"
+		p.Level, p.LevelSigma, p.LevelApplied = stp.After, stp.AfterSigma, stp.afterApplied
+		stp.Downstream = "before"
+		stp.CurrentAlongFlowA = ptr((stp.Before - stp.After) * cmpMedian(beforeI))
+	default:
+		p.LevelFrom = "unknown"
+		p.SideLevels = true
+		p.Level, p.LevelSigma = stp.Before, stp.BeforeSigma
+		p.LevelApplied = stp.beforeApplied || stp.afterApplied
+	}
 	return p
+}
+
+// bracketStep sets the chainages of stp, a step of the ratio between the
+// ratio's stations idx[k-1] and idx[k] (its FromKey and ToKey), on OLD's
+// chainage from both walks' stations. A ratio compares NEW's station at
+// one place with OLD's at another (a re-walk's traverses a metre or two
+// from the first survey's), and a loss that changed in either survey
+// moves it once either station is past the loss: so the step lies past
+// the nearer of the two stations of the last pair that reads the level
+// before it and short of the farther of the first pair that reads the
+// level after it. A pair beside the step whose ratio agrees with both
+// levels (within sigmas of each: near a step the fits are poor) does not
+// say which side it is on, and the bracket is widened past it.
+func bracketStep(stp *RatioStep, st []StationChange, idx []int, r, rs []float64, sigmas float64) {
+	k := -1
+	for i := 1; i < len(idx); i++ {
+		if st[idx[i-1]].OldKey == stp.FromKey && st[idx[i]].OldKey == stp.ToKey {
+			k = i
+		}
+	}
+	if k < 0 {
+		return
+	}
+	stp.split, stp.hasSplit = (st[idx[k-1]].Chainage+st[idx[k]].Chainage)/2, true
+	either := func(i int) bool {
+		return math.Abs(r[i]-stp.Before) <= sigmas*math.Hypot(rs[i], stp.BeforeSigma) &&
+			math.Abs(r[i]-stp.After) <= sigmas*math.Hypot(rs[i], stp.AfterSigma)
+	}
+	lo, hi := k-1, k
+	for lo > 0 && either(lo) {
+		lo--
+	}
+	for hi < len(idx)-1 && either(hi) {
+		hi++
+	}
+	a, b := st[idx[lo]], st[idx[hi]]
+	stp.FromKey, stp.ToKey = a.OldKey, b.OldKey
+	stp.ChainageFrom, stp.ChainageTo = a.Chainage, b.Chainage
+	if a.NewOnOld != 0 || b.NewOnOld != 0 {
+		if a.Chainage <= b.Chainage {
+			stp.ChainageFrom, stp.ChainageTo = math.Min(a.Chainage, a.NewOnOld), math.Max(b.Chainage, b.NewOnOld)
+		} else {
+			stp.ChainageFrom, stp.ChainageTo = math.Max(a.Chainage, a.NewOnOld), math.Min(b.Chainage, b.NewOnOld)
+		}
+	}
 }
 
 // stepFinding is a current-step finding's bracket and step.
@@ -736,10 +1338,6 @@ func stepsOf(d *Document, conductor int, mapCh func(float64) float64) []stepFind
 func (c *Comparison) compareSteps(old, newDoc *Document, oc, nc, number int, mapCh func(float64) float64, cc ConductorComparison, s CompareSettings) {
 	os := stepsOf(old, oc, func(x float64) float64 { return x })
 	ns := stepsOf(newDoc, nc, mapCh)
-	level, levelSigma := 1.0, 0.0
-	if cc.Ratio != nil && cc.Ratio.LevelApplied {
-		level, levelSigma = cc.Ratio.Level, cc.Ratio.LevelSigma
-	}
 	// A NEW step with negative sign along a route measured the other way
 	// is a loss too: compare by the size of the loss along OLD's direction.
 	usedN := map[int]bool{}
@@ -767,6 +1365,10 @@ func (c *Comparison) compareSteps(old, newDoc *Document, oc, nc, number int, map
 		sc.ChainageFrom, sc.ChainageTo = math.Max(a.from, b.from), math.Min(a.to, b.to)
 		if sc.ChainageFrom > sc.ChainageTo {
 			sc.ChainageFrom, sc.ChainageTo = a.from, a.to
+		}
+		level, levelSigma, ok := cc.Ratio.levelAt(a.from)
+		if !ok {
+			level, levelSigma = 1, 0
 		}
 		d := math.Abs(b.step) - level*math.Abs(a.step)
 		sd := math.Sqrt(sq(b.sg) + sq(level*a.sg) + sq(a.step*levelSigma))
@@ -798,8 +1400,10 @@ func (c *Comparison) compareSteps(old, newDoc *Document, oc, nc, number int, map
 }
 
 // listChanges words what changed, in route order per conductor: the
-// level, a step of the ratio, the steps new, gone, grown or shrunk, the
-// stations whose current or cover changed and those without a partner.
+// level, a common depth offset, a step of the ratio (with the stations
+// past it whose flags restate it), the steps new, gone, grown or shrunk,
+// and the stations whose current or cover changed. Stations without a
+// partner are notes, not changes.
 func (c *Comparison) listChanges() {
 	q := "cover"
 	if c.DepthQuantity == "depth" {
@@ -810,65 +1414,231 @@ func (c *Comparison) listChanges() {
 		if cc.Old != 1 {
 			who = fmt.Sprintf("conductor %d: ", cc.Old)
 		}
-		if r := cc.Ratio; r != nil && r.LevelApplied {
-			c.Changes = append(c.Changes, Change{Kind: "level-change", Conductor: cc.Old,
-				Message: fmt.Sprintf("%sthe current changed by one factor along the route, NEW/OLD %.4f ± %.4f (a transmitter or rectifier set differently): station changes below are beyond that factor", who, r.Level, r.LevelSigma)})
+		r := cc.Ratio
+		var grouped map[string]bool
+		if r != nil && r.LevelApplied {
+			ch := Change{Kind: "level-change", Conductor: cc.Old, Value: ptr(r.Level), Sigma: ptr(r.LevelSigma), Unit: "ratio"}
+			cause := c.levelCause()
+			switch r.LevelFrom {
+			case "upstream":
+				side, from := "before", r.Step.ChainageFrom
+				if r.Step.Downstream == "before" {
+					side, from = "past", r.Step.ChainageTo
+				}
+				ch.Message = fmt.Sprintf("%sthe supply's current changed by one factor, NEW/OLD %s (%s), read on the side the current flows from, %s chainage %.1f m; past the step in the ratio, along the flow, the stations read %s, that factor less the change of loss at the step: station changes below are beyond the supply's factor",
+					who, pmText(r.Level, r.LevelSigma, 3), cause, side, from, pmText(otherSide(r), otherSideSigma(r), 3))
+			case "unknown":
+				st := r.Step
+				ch.ValuePast, ch.SigmaPast = ptr(st.After), ptr(st.AfterSigma)
+				ch.Message = fmt.Sprintf("%sthe ratio NEW/OLD reads %s before chainage %.1f m and %s past %.1f m: the supply's factor (%s) is the reading on the side the current is fed from, which an AC magnitude does not tell; neither side is taken as the factor, and each station is measured against its own side's reading",
+					who, pmText(st.Before, st.BeforeSigma, 3), st.ChainageFrom, pmText(st.After, st.AfterSigma, 3), st.ChainageTo, cause)
+			default:
+				ch.Message = fmt.Sprintf("%sthe current changed by one factor along the route, NEW/OLD %s (%s): station changes below are beyond that factor", who, pmText(r.Level, r.LevelSigma, 3), cause)
+			}
+			c.Changes = append(c.Changes, ch)
 		}
-		if r := cc.Ratio; r != nil && r.Step != nil {
+		if o := cc.DepthOffset; o != nil && o.Applied {
+			c.Changes = append(c.Changes, Change{Kind: "depth-offset", Conductor: cc.Old, Value: ptr(o.Offset), Sigma: ptr(o.Sigma), Unit: "m",
+				Message: fmt.Sprintf("%s%d of %d stations' %s changed by one amount, %s m: the sensor height (locate --sensor-height) or the ground level (--reference-z) differs between the surveys, or the whole route was re-graded; station changes below are beyond it",
+					who, o.Stations, o.Of, q, signed(pmText(o.Offset, o.Sigma, 3)))})
+		}
+		if r != nil && r.Step != nil {
 			st := r.Step
-			c.Changes = append(c.Changes, Change{Kind: "ratio-step", Conductor: cc.Old, Chainage: ptr((st.ChainageFrom + st.ChainageTo) / 2),
-				Groups: []string{st.FromKey, st.ToKey},
-				Message: fmt.Sprintf("%sthe ratio NEW/OLD steps from %.4f ± %.4f to %.4f ± %.4f between %s and %s (chainage %.1f-%.1f m, %.1f sigma, about %+.3g A): a loss that changed there",
-					who, st.Before, st.BeforeSigma, st.After, st.AfterSigma, st.FromKey, st.ToKey, st.ChainageFrom, st.ChainageTo, st.Z, st.CurrentA)})
+			ch := Change{Kind: "ratio-step", Conductor: cc.Old, Chainage: roundCh((st.ChainageFrom + st.ChainageTo) / 2),
+				ChainageFrom: roundCh(st.ChainageFrom), ChainageTo: roundCh(st.ChainageTo),
+				Groups: []string{st.FromKey, st.ToKey}, OldGroups: []string{st.FromKey, st.ToKey}, Unit: "A"}
+			head := fmt.Sprintf("%sthe ratio NEW/OLD steps from %s to %s between %s and %s (chainage %.1f-%.1f m, %.1f sigma)",
+				who, pmText(st.Before, st.BeforeSigma, 3), pmText(st.After, st.AfterSigma, 3), st.FromKey, st.ToKey, st.ChainageFrom, st.ChainageTo, st.Z)
+			if st.CurrentAlongFlowA != nil {
+				a := *st.CurrentAlongFlowA
+				ch.Value = ptr(a)
+				if st.After != st.Before {
+					ch.Sigma = ptr(math.Abs(a) * math.Hypot(st.BeforeSigma, st.AfterSigma) / math.Abs(st.After-st.Before))
+				}
+				verb, why := "falls", "current leaving the conductor there (a loss new or grown since OLD)"
+				if a > 0 {
+					verb, why = "rises", "current joining the conductor there, or a loss OLD had that has shrunk"
+				}
+				// The stations past the step, along the flow, whose flags
+				// restate it.
+				grouped = map[string]bool{}
+				for _, sc := range cc.Stations {
+					past := sc.Chainage > st.boundary()
+					if st.Downstream == "before" {
+						past = !past
+					}
+					if !past || !sc.CurrentFlag {
+						continue
+					}
+					// Its change against the supply's factor agrees with the
+					// step's at its own current (within the sigmas, or the
+					// current threshold): one event, not another.
+					level, _, _ := r.levelAt(sc.Chainage)
+					dm := math.Abs(sc.NewCurrent) - level*math.Abs(sc.OldCurrent)
+					sd := sc.CurrentSigma
+					if sc.BeyondLevelSigma != nil {
+						sd = *sc.BeyondLevelSigma
+					}
+					exp := (otherSide(r) - r.Level) * math.Abs(sc.OldCurrent)
+					if dm*a > 0 && math.Abs(dm-exp) <= math.Max(c.Sigmas*math.Hypot(sd, otherSideSigma(r)*math.Abs(sc.OldCurrent)), cc.MinCurrentChangeA) {
+						grouped[sc.OldKey] = true
+						ch.Stations = append(ch.Stations, sc.OldKey)
+					}
+				}
+				ch.Message = head + fmt.Sprintf(": along the flow the current now %s there by about %s A more than in OLD: %s", verb, strconv.FormatFloat(math.Abs(a), 'g', 3, 64), why)
+				if len(ch.Stations) > 0 {
+					ch.Message += fmt.Sprintf("; the stations past it, %s, each read this change against the supply's factor", strings.Join(ch.Stations, ", "))
+				}
+			} else {
+				ch.Value = ptr(st.CurrentA)
+				if st.After != st.Before {
+					ch.Sigma = ptr(math.Abs(st.CurrentA) * math.Hypot(st.BeforeSigma, st.AfterSigma) / math.Abs(st.After-st.Before))
+				}
+				ch.Message = head + fmt.Sprintf(": about %s A if the current is fed from the start of the route (the reverse if fed from the far end): a loss that changed there", signed(strconv.FormatFloat(st.CurrentA, 'g', 3, 64)))
+			}
+			c.Changes = append(c.Changes, ch)
 		}
 		for _, sp := range c.Steps {
 			if sp.Conductor != cc.Old || sp.Status == "unchanged" {
 				continue
 			}
 			mid := (sp.ChainageFrom + sp.ChainageTo) / 2
+			ch := Change{Kind: "step-" + sp.Status, Conductor: cc.Old, Chainage: roundCh(mid),
+				ChainageFrom: roundCh(sp.ChainageFrom), ChainageTo: roundCh(sp.ChainageTo),
+				Groups: append(append([]string(nil), sp.OldGroups...), sp.NewGroups...), OldGroups: sp.OldGroups, NewGroups: sp.NewGroups, Unit: "A"}
 			var msg string
 			switch sp.Status {
 			case "new":
-				msg = fmt.Sprintf("a new change of current %+.4g ± %.2g A at chainage %.1f-%.1f m (NEW %s), not found in OLD", *sp.NewStep, *sp.NewStepSigma, sp.ChainageFrom, sp.ChainageTo, strings.Join(sp.NewGroups, "-"))
+				ch.Value, ch.Sigma = ptr(*sp.NewStep), ptr(*sp.NewStepSigma)
+				msg = fmt.Sprintf("a new change of current %s A at chainage %.1f-%.1f m (NEW %s), not found in OLD", signed(pmText(*sp.NewStep, *sp.NewStepSigma, 3)), sp.ChainageFrom, sp.ChainageTo, strings.Join(sp.NewGroups, "-"))
 			case "gone":
-				msg = fmt.Sprintf("the change of current %+.4g ± %.2g A at chainage %.1f-%.1f m (OLD %s) is not found in NEW", *sp.OldStep, *sp.OldStepSigma, sp.ChainageFrom, sp.ChainageTo, strings.Join(sp.OldGroups, "-"))
+				ch.Value, ch.Sigma = ptr(*sp.OldStep), ptr(*sp.OldStepSigma)
+				msg = fmt.Sprintf("the change of current %s A at chainage %.1f-%.1f m (OLD %s) is not found in NEW", signed(pmText(*sp.OldStep, *sp.OldStepSigma, 3)), sp.ChainageFrom, sp.ChainageTo, strings.Join(sp.OldGroups, "-"))
 			default:
-				msg = fmt.Sprintf("the change of current at chainage %.1f-%.1f m has %s: %+.4g ± %.2g A in OLD, %+.4g ± %.2g A in NEW, its size %+.4g ± %.2g A (%.1f sigma)",
-					sp.ChainageFrom, sp.ChainageTo, sp.Status, *sp.OldStep, *sp.OldStepSigma, *sp.NewStep, *sp.NewStepSigma, *sp.Change, *sp.ChangeSigma, math.Abs(*sp.Z))
+				ch.Value, ch.Sigma = ptr(*sp.Change), ptr(*sp.ChangeSigma)
+				msg = fmt.Sprintf("the change of current at chainage %.1f-%.1f m has %s: %s A in OLD, %s A in NEW, its size %s A (%.1f sigma)",
+					sp.ChainageFrom, sp.ChainageTo, sp.Status, signed(pmText(*sp.OldStep, *sp.OldStepSigma, 3)), signed(pmText(*sp.NewStep, *sp.NewStepSigma, 3)), signed(pmText(*sp.Change, *sp.ChangeSigma, 3)), math.Abs(*sp.Z))
 			}
-			c.Changes = append(c.Changes, Change{Kind: "step-" + sp.Status, Conductor: cc.Old, Chainage: &mid,
-				Groups: append(append([]string(nil), sp.OldGroups...), sp.NewGroups...), Message: who + msg})
+			ch.Message = who + msg
+			c.Changes = append(c.Changes, ch)
 		}
-		for _, sc := range cc.Stations {
-			ch := sc.Chainage
-			if sc.CurrentFlag {
+		stations := append(append([]StationChange(nil), cc.Stations...), cc.Between...)
+		sort.SliceStable(stations, func(i, j int) bool { return stations[i].Chainage < stations[j].Chainage })
+		for _, sc := range stations {
+			where := sc.OldKey
+			if sc.Interpolated {
+				where = fmt.Sprintf("NEW's %s, between OLD's %s,", sc.NewKey, strings.Replace(sc.OldKey, "-", " and ", 1))
+			}
+			doubt := ""
+			if sc.PoorFit != "" {
+				doubt = fmt.Sprintf("; doubtful: %s's fit here is poor, ambiguous or failed", map[string]string{"both": "each survey", "OLD": "OLD", "NEW": "NEW"}[sc.PoorFit])
+			}
+			if sc.CurrentFlag && !grouped[sc.OldKey] {
 				d, sd, z, how := sc.CurrentChange, sc.CurrentSigma, sc.CurrentZ, ""
 				if sc.BeyondLevel != nil {
 					d, sd, z, how = *sc.BeyondLevel, *sc.BeyondLevelSigma, *sc.BeyondLevelZ, " beyond the route's factor"
 				}
-				c.Changes = append(c.Changes, Change{Kind: "current-change", Conductor: cc.Old, Chainage: &ch, Groups: []string{sc.OldKey, sc.NewKey},
-					Message: fmt.Sprintf("%s%s at chainage %.1f m: current %.4g ± %.2g A, was %.4g ± %.2g A: changed %+.4g ± %.2g A%s (%.1f sigma)",
-						who, sc.OldKey, ch, sc.NewCurrent, sc.NewCurrentSig, sc.OldCurrent, sc.OldCurrentSig, d, sd, how, math.Abs(z))})
+				c.Changes = append(c.Changes, Change{Kind: "current-change", Conductor: cc.Old, Chainage: roundCh(sc.Chainage),
+					Groups: []string{sc.OldKey, sc.NewKey}, OldGroups: []string{sc.OldKey}, NewGroups: []string{sc.NewKey},
+					Value: ptr(d), Sigma: ptr(sd), Unit: "A",
+					Message: fmt.Sprintf("%s%s at chainage %.1f m: current %s A, was %s A: changed %s A%s (%.1f sigma)%s",
+						who, where, sc.Chainage, pmText(sc.NewCurrent, sc.NewCurrentSig, 3), pmText(sc.OldCurrent, sc.OldCurrentSig, 3), signed(pmText(d, sd, 3)), how, math.Abs(z), doubt)})
 			}
 			if sc.CoverFlag {
 				extra := ""
 				if sc.NowShallow {
 					extra = fmt.Sprintf(", now under the minimum cover of %.2f m", *c.MinCoverM)
 				}
-				c.Changes = append(c.Changes, Change{Kind: "cover-change", Conductor: cc.Old, Chainage: &ch, Groups: []string{sc.OldKey, sc.NewKey},
-					Message: fmt.Sprintf("%s%s at chainage %.1f m: %s %.3f ± %.3f m, was %.3f ± %.3f m: changed %+.3f ± %.3f m (%.1f sigma)%s",
-						who, sc.OldKey, ch, q, *sc.NewCover, *sc.NewCoverSig, *sc.OldCover, *sc.OldCoverSig, *sc.CoverChange, *sc.CoverSigma, math.Abs(*sc.CoverZ), extra)})
+				d, sd, z, how := *sc.CoverChange, *sc.CoverSigma, *sc.CoverZ, ""
+				if sc.CoverBeyondOffset != nil {
+					d, sd, z, how = *sc.CoverBeyondOffset, *sc.CoverBeyondOffsetSigma, *sc.CoverBeyondOffsetZ, " beyond the common offset"
+				}
+				was := "was"
+				if sc.Interpolated {
+					was = "OLD interpolated"
+				}
+				c.Changes = append(c.Changes, Change{Kind: "cover-change", Conductor: cc.Old, Chainage: roundCh(sc.Chainage),
+					Groups: []string{sc.OldKey, sc.NewKey}, OldGroups: []string{sc.OldKey}, NewGroups: []string{sc.NewKey},
+					Value: ptr(d), Sigma: ptr(sd), Unit: "m",
+					Message: fmt.Sprintf("%s%s at chainage %.1f m: %s %s m, %s %s m: changed %s m%s (%.1f sigma)%s%s",
+						who, where, sc.Chainage, q, pmText(*sc.NewCover, *sc.NewCoverSig, 3), was, pmText(*sc.OldCover, *sc.OldCoverSig, 3), signed(pmText(d, sd, 3)), how, math.Abs(z), extra, doubt)})
 			}
 		}
 		if len(cc.OldOnly) > 0 {
-			c.Changes = append(c.Changes, Change{Kind: "station-unmatched", Conductor: cc.Old, Groups: cc.OldOnly,
-				Message: fmt.Sprintf("%sOLD's stations %s have no partner among NEW's used stations within %g m (none was surveyed there, or its fit was left out of the route)", who, strings.Join(cc.OldOnly, ", "), c.ToleranceM)})
+			c.Notes = append(c.Notes, fmt.Sprintf("%sOLD's stations %s have no partner among NEW's used stations within %g m (none was surveyed there, or its fit was left out of the route)", who, strings.Join(cc.OldOnly, ", "), c.ToleranceM))
 		}
 		if len(cc.NewOnly) > 0 {
-			c.Changes = append(c.Changes, Change{Kind: "station-unmatched", Conductor: cc.Old, Groups: cc.NewOnly,
-				Message: fmt.Sprintf("%sNEW's stations %s have no partner among OLD's used stations within %g m (none was surveyed there, or its fit was left out of the route)", who, strings.Join(cc.NewOnly, ", "), c.ToleranceM)})
+			var between, beyond []string
+			inB := map[string]bool{}
+			for _, sc := range cc.Between {
+				inB[sc.NewKey] = true
+			}
+			for _, k := range cc.NewOnly {
+				if inB[k] {
+					between = append(between, k)
+				} else {
+					beyond = append(beyond, k)
+				}
+			}
+			if len(between) > 0 {
+				c.Notes = append(c.Notes, fmt.Sprintf("%sNEW's stations %s have no partner within %g m but lie between OLD's: their cover was compared with OLD's interpolated along the route", who, strings.Join(between, ", "), c.ToleranceM))
+			}
+			if len(beyond) > 0 {
+				c.Notes = append(c.Notes, fmt.Sprintf("%sNEW's stations %s have no partner among OLD's used stations within %g m (none was surveyed there, or its fit was left out of the route)", who, strings.Join(beyond, ", "), c.ToleranceM))
+			}
 		}
 	}
+}
+
+// levelCause words what changes every current by one factor: for DC a
+// rectifier or transmitter; for AC at a mains frequency (50 or 60 Hz and
+// their harmonics) the load on the line; for another AC tone the
+// transmitter.
+func (c *Comparison) levelCause() string {
+	if c.Mode != SignalAC {
+		return "a rectifier or transmitter set differently"
+	}
+	for _, f0 := range []float64{50, 60} {
+		if h := c.FrequencyHz / f0; h >= 0.5 && math.Abs(h-math.Round(h)) < 0.01 {
+			return "the load on the line changed"
+		}
+	}
+	return "a transmitter set differently"
+}
+
+// otherSide returns the ratio on the side of r's step the current flows
+// to, and otherSideSigma its sigma.
+func otherSide(r *RatioProfile) float64 {
+	if r.Step.Downstream == "before" {
+		return r.Step.Before
+	}
+	return r.Step.After
+}
+
+func otherSideSigma(r *RatioProfile) float64 {
+	if r.Step.Downstream == "before" {
+		return r.Step.BeforeSigma
+	}
+	return r.Step.AfterSigma
+}
+
+// pmText formats v ± sigma for the terminal and the list of changes:
+// sigma to two significant digits and v to the same decimals, at least
+// prec (at most 12), as results.csv keeps a small sigma from being
+// rounded to 0; a sigma that is not positive is printed with prec.
+func pmText(v, sigma float64, prec int) string {
+	if sigma > 0 && !math.IsInf(sigma, 0) && !math.IsNaN(sigma) {
+		prec = max(prec, min(12, 1-int(math.Floor(math.Log10(sigma)))))
+	}
+	return fix(v, prec) + " ± " + fix(sigma, prec)
+}
+
+// signed puts a + before a text that does not start with a sign.
+func signed(t string) string {
+	if strings.HasPrefix(t, "-") {
+		return t
+	}
+	return "+" + t
 }
 
 // WriteComparisonJSON writes c as indented JSON.
@@ -940,7 +1710,11 @@ func WriteComparisonText(w io.Writer, c *Comparison) error {
 		if cc.Ratio != nil && cc.Ratio.LevelApplied {
 			head = "beyond level, A"
 		}
-		fmt.Fprintf(&b, "%-10s %-10s %9s %22s %9s %18s %s\n", "OLD", "NEW", "chainage", head, "z", "ratio NEW/OLD", orDepth(c.DepthQuantity)+" change m (z)")
+		covHead := orDepth(c.DepthQuantity) + " change m (z)"
+		if o := cc.DepthOffset; o != nil && o.Applied {
+			covHead = orDepth(c.DepthQuantity) + " beyond offset m (z)"
+		}
+		fmt.Fprintf(&b, "%-10s %-10s %9s %22s %9s %18s %s\n", "OLD", "NEW", "chainage", head, "z", "ratio NEW/OLD", covHead)
 		for _, s := range cc.Stations {
 			d, sd, z := s.CurrentChange, s.CurrentSigma, s.CurrentZ
 			if s.BeyondLevel != nil {
@@ -952,7 +1726,7 @@ func WriteComparisonText(w io.Writer, c *Comparison) error {
 			}
 			ratio := "-"
 			if s.Ratio != nil {
-				ratio = fmt.Sprintf("%.4f ± %.4f", *s.Ratio, *s.RatioSigma)
+				ratio = pmText(*s.Ratio, *s.RatioSigma, 3)
 			}
 			cov := "-"
 			if s.CoverChange != nil {
@@ -960,10 +1734,17 @@ func WriteComparisonText(w io.Writer, c *Comparison) error {
 				if s.CoverFlag {
 					cm = "*"
 				}
-				cov = fmt.Sprintf("%+.3f ± %.3f (%.1f)%s", *s.CoverChange, *s.CoverSigma, *s.CoverZ, cm)
+				d, sd, z := *s.CoverChange, *s.CoverSigma, *s.CoverZ
+				if s.CoverBeyondOffset != nil {
+					d, sd, z = *s.CoverBeyondOffset, *s.CoverBeyondOffsetSigma, *s.CoverBeyondOffsetZ
+				}
+				cov = fmt.Sprintf("%s (%.1f)%s", signed(pmText(d, sd, 3)), z, cm)
 				if s.NowShallow {
 					cov += " now shallow"
 				}
+			}
+			if s.PoorFit != "" {
+				cov += "  poor fit (" + s.PoorFit + ")"
 			}
 			fmt.Fprintf(&b, "%-10s %-10s %9.1f %+11.4g ± %-8.2g%s %8.1f %18s %s\n", s.OldKey, s.NewKey, s.Chainage, d, sd, mark, z, ratio, cov)
 		}
@@ -972,14 +1753,29 @@ func WriteComparisonText(w io.Writer, c *Comparison) error {
 			if !r.Constant {
 				word = "not constant"
 			}
-			fmt.Fprintf(&b, "Ratio NEW/OLD: %.4f ± %.4f over %d stations (chi-square %.1f for %d degrees of freedom), %s", r.Level, r.LevelSigma, r.Stations, r.Chi2, r.Dof, word)
-			if r.Step != nil {
-				fmt.Fprintf(&b, ": steps from %.4f to %.4f between %s and %s", r.Step.Before, r.Step.After, r.Step.FromKey, r.Step.ToKey)
+			switch r.LevelFrom {
+			case "upstream":
+				fmt.Fprintf(&b, "Ratio NEW/OLD over %d stations (chi-square %.1f for %d degrees of freedom), %s: steps from %s to %s between %s and %s; the supply's factor is %s, on the side the current flows from", r.Stations, r.Chi2, r.Dof, word,
+					pmText(r.Step.Before, r.Step.BeforeSigma, 3), pmText(r.Step.After, r.Step.AfterSigma, 3), r.Step.FromKey, r.Step.ToKey, pmText(r.Level, r.LevelSigma, 3))
+			case "unknown":
+				fmt.Fprintf(&b, "Ratio NEW/OLD over %d stations (chi-square %.1f for %d degrees of freedom), %s: steps from %s to %s between %s and %s; which side is the supply's factor depends on the end the current is fed from", r.Stations, r.Chi2, r.Dof, word,
+					pmText(r.Step.Before, r.Step.BeforeSigma, 3), pmText(r.Step.After, r.Step.AfterSigma, 3), r.Step.FromKey, r.Step.ToKey)
+			default:
+				fmt.Fprintf(&b, "Ratio NEW/OLD: %s over %d stations (chi-square %.1f for %d degrees of freedom), %s", pmText(r.Level, r.LevelSigma, 3), r.Stations, r.Chi2, r.Dof, word)
 			}
-			if r.LevelApplied {
-				fmt.Fprintf(&b, "; the level changed, so station changes are NEW - %.4f × OLD", r.Level)
+			switch {
+			case r.SideLevels && r.LevelApplied:
+				b.WriteString("; station changes are NEW less each side's ratio × OLD")
+			case r.LevelApplied:
+				fmt.Fprintf(&b, "; the level changed, so station changes are NEW - %s × OLD", fix(r.Level, 4))
 			}
 			b.WriteString(".\n")
+		}
+		if o := cc.DepthOffset; o != nil && o.Applied {
+			fmt.Fprintf(&b, "Common change of %s: %s m at %d of %d stations; the changes above are beyond it.\n", orDepth(c.DepthQuantity), signed(pmText(o.Offset, o.Sigma, 3)), o.Stations, o.Of)
+		}
+		if len(cc.Between) > 0 {
+			fmt.Fprintf(&b, "%d of NEW's stations lie between OLD's and were compared with OLD interpolated along the route.\n", len(cc.Between))
 		}
 	}
 	fmt.Fprintf(&b, "\nChanges of current (steps): ")
@@ -988,14 +1784,14 @@ func WriteComparisonText(w io.Writer, c *Comparison) error {
 	} else {
 		b.WriteString("\n")
 		for _, sp := range c.Steps {
-			o, n := "-", "-"
+			o, n := "no step", "no step"
 			if sp.OldStep != nil {
-				o = fmt.Sprintf("%+.4g ± %.2g", *sp.OldStep, *sp.OldStepSigma)
+				o = signed(pmText(*sp.OldStep, *sp.OldStepSigma, 3)) + " A"
 			}
 			if sp.NewStep != nil {
-				n = fmt.Sprintf("%+.4g ± %.2g", *sp.NewStep, *sp.NewStepSigma)
+				n = signed(pmText(*sp.NewStep, *sp.NewStepSigma, 3)) + " A"
 			}
-			fmt.Fprintf(&b, "  conductor %d, chainage %.1f-%.1f m: OLD %s A, NEW %s A: %s\n", sp.Conductor, sp.ChainageFrom, sp.ChainageTo, o, n, sp.Status)
+			fmt.Fprintf(&b, "  conductor %d, chainage %.1f-%.1f m: OLD %s, NEW %s: %s\n", sp.Conductor, sp.ChainageFrom, sp.ChainageTo, o, n, sp.Status)
 		}
 	}
 	if len(c.Changes) == 0 {

@@ -86,4 +86,4 @@ var csvTextColumns = []string{
 }
 
 // findingsTextColumns are the columns of findings.csv that hold text.
-var findingsTextColumns = []string{"severity", "kind", "groups", "values", "message", "value_name", "value_unit", "id"}
+var findingsTextColumns = []string{"severity", "kind", "groups", "values", "message", "value_name", "value_unit", "id", "value_key", "value_keys"}

@@ -32,7 +32,8 @@ import (
 // oblique crossing). Only the first fit of a log (starting short) and
 // its last (ending short) are named, in the fits' order (that of the log
 // or of time), keyed by Fit.Log: a short traverse mid-log was walked
-// short (a wall, a fence), not cut. The map is keyed by the fits'
+// short (a wall, a fence), not cut; nor is the one group of a log that
+// holds no other (a file a traverse). The map is keyed by the fits'
 // indices. Build leaves a fit so named out of the route's line and steps,
 // as one too short to place the conductor (unplace), and so out of the
 // sound count, but still checks its cover (addCutShortCover).
@@ -81,12 +82,26 @@ func cutShortProblems(fits []Fit) map[int]string {
 	// fit stands as it is: in review the rule named good fits beside a
 	// wall (30.00 +- 0.01 A, 1.500 m, truth 30 A at 1.5 m) and hid a
 	// 0.52 m cover under one of them.
+	// A log that holds one group only says nothing of a cut at its ends:
+	// one file a traverse is a common habit of loggers, and each such
+	// file's traverse is both its first and its last, so a traverse
+	// walked short beside a wall was named cut short in every file (in
+	// review, 5 good fits, 9.989 A and 1.1985 m for 10 A and 1.2 m, left
+	// out of the route, and a current step's bracket grew from 4 m to
+	// 20 m). Only a log with other groups before or after the short one
+	// shows that the walk went on past it.
 	firstOf, lastOf := map[string]int{}, map[string]int{}
+	keys := map[string]map[string]bool{}
 	for i := range fits {
-		if _, ok := firstOf[fits[i].Log]; !ok {
-			firstOf[fits[i].Log] = i
+		l := fits[i].Log
+		if _, ok := firstOf[l]; !ok {
+			firstOf[l] = i
 		}
-		lastOf[fits[i].Log] = i
+		lastOf[l] = i
+		if keys[l] == nil {
+			keys[l] = map[string]bool{}
+		}
+		keys[l][fits[i].Key] = true
 	}
 	out := map[int]string{}
 	for i, t := range tr {
@@ -94,7 +109,7 @@ func cutShortProblems(fits []Fit) map[int]string {
 			continue
 		}
 		atStart, atEnd := firstOf[fits[i].Log] == i, lastOf[fits[i].Log] == i
-		if !atStart && !atEnd {
+		if !atStart && !atEnd || len(keys[fits[i].Log]) < 2 {
 			continue
 		}
 		// The plane of the traverse, square to u in plan.

@@ -107,9 +107,23 @@ type Document struct {
 // PositionSigma is the one-sigma uncertainty of the logged positions the
 // fits counted in their sigmas, m: Plan across the plan (east and north,
 // each), Up in height.
+//
+// With Columns the sigmas were each reading's own, from the log's
+// position sigma columns (sigma_plan, sigma_up: a receiver's accuracy
+// estimates): Plan and Up are then the largest of them, and FloorPlan
+// and FloorUp the --position-sigma given beside them as a floor (0 for
+// none).
 type PositionSigma struct {
-	Plan float64 `json:"plan_m"`
-	Up   float64 `json:"up_m"`
+	Plan      float64 `json:"plan_m"`
+	Up        float64 `json:"up_m"`
+	Columns   bool    `json:"from_log_columns,omitempty"`
+	FloorPlan float64 `json:"floor_plan_m,omitempty"`
+	FloorUp   float64 `json:"floor_up_m,omitempty"`
+	// Sources names the log columns read as the sigmas, with the unit
+	// each was taken in: "hacc (mm) and vacc (m)" (set by the caller
+	// that read the logs; empty when it did not say). A column that
+	// means something else, or a unit misread, shows here.
+	Sources string `json:"columns,omitempty"`
 }
 
 // Words says what a fit's sigma counts with these position sigmas, for
@@ -119,9 +133,37 @@ func (p *PositionSigma) Words() string {
 	if p == nil {
 		return "the reading noise"
 	}
+	if p.Columns {
+		from := "the log's position sigma columns"
+		if p.Sources != "" {
+			from = "the log's columns " + p.Sources
+		}
+		w := fmt.Sprintf("the reading noise and position uncertainty (each reading's own, from %s, up to %s m plan, %s m height",
+			from, strconv.FormatFloat(p.Plan, 'g', 3, 64), strconv.FormatFloat(p.Up, 'g', 3, 64))
+		if p.FloorPlan+p.FloorUp > 0 {
+			w += fmt.Sprintf("; none below the %s m plan, %s m height given with --position-sigma",
+				strconv.FormatFloat(p.FloorPlan, 'g', 3, 64), strconv.FormatFloat(p.FloorUp, 'g', 3, 64))
+		}
+		return w + ")"
+	}
 	return fmt.Sprintf("the reading noise and position uncertainty (%s m plan, %s m height)",
 		strconv.FormatFloat(p.Plan, 'g', 3, 64), strconv.FormatFloat(p.Up, 'g', 3, 64))
 }
+
+// given says where the position sigmas came from, for the notes.
+func (p *PositionSigma) given() string {
+	if p.Columns && p.Sources != "" {
+		return "as the log's columns " + p.Sources + " give them"
+	}
+	if p.Columns {
+		return "as the log's position sigma columns give them"
+	}
+	return "as given with --position-sigma"
+}
+
+// Given says where the position sigmas came from: "as given with
+// --position-sigma", or the log's columns.
+func (p *PositionSigma) Given() string { return p.given() }
 
 // UncertaintyNoteFor is the Document.UncertaintyNote that Build writes
 // for fits given the position sigmas pos: SigmaNote for nil (the positions
@@ -134,7 +176,7 @@ func UncertaintyNoteFor(pos *PositionSigma) string {
 		return SigmaNote
 	}
 	return "Every fitted sigma (current_sigma_a, depth_sigma_m, phase_sigma_deg, offset, azimuth and dip " +
-		"sigmas) counts " + pos.Words() + ", as given with --position-sigma (position_sigma): each reading " +
+		"sigmas) counts " + pos.Words() + ", " + pos.given() + " (position_sigma): each reading " +
 		"weighed by its whole variance, the field's change over that position error added to the reading noise " +
 		"(with a base-station correction, the base record's own noise too, which every survey reading taken between " +
 		"two of its readings shares); a magnetised object's position and moment sigmas, fitted apart with the " +
@@ -949,7 +991,15 @@ type Finding struct {
 
 // Value is a number with its sigma and unit.
 type Value struct {
-	Name  string  `json:"name"`
+	// Name is a phrase for a crew ("location (chainage)"), which a later
+	// version may reword.
+	Name string `json:"name"`
+	// Key is the value's machine key ("location_chainage_m", ValueKey),
+	// which is not reworded: findingValueKeys names every value of every
+	// kind of finding and README lists them. Set when the document is
+	// written, as Finding.ID is; empty in a document being built or read
+	// back.
+	Key   string  `json:"key,omitempty"`
 	Value float64 `json:"value"`
 	Sigma float64 `json:"sigma,omitempty"`
 	Unit  string  `json:"unit,omitempty"`

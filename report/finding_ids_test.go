@@ -60,8 +60,10 @@ func TestFindingIDsJoinFiles(t *testing.T) {
 		t.Fatal(err)
 	}
 	col := slices.Index(rows[0], "id")
-	if col != len(rows[0])-1 {
-		t.Fatalf("findings.csv header %q: want id as the last column (added at the end)", rows[0])
+	// id was added at the end, and the values' keys after it
+	// (value_key, value_keys): the columns before stay where they were.
+	if col != len(rows[0])-3 || !slices.Equal(rows[0][col+1:], []string{"value_key", "value_keys"}) {
+		t.Fatalf("findings.csv header %q: want id, value_key and value_keys as the last columns (added at the end)", rows[0])
 	}
 	var fromCSV []string
 	for _, r := range rows[1:] {
@@ -78,21 +80,9 @@ func TestFindingIDsJoinFiles(t *testing.T) {
 		t.Errorf("findings.csv id %q, want %q", fromCSV, want)
 	}
 
-	var gj bytes.Buffer
-	if err := WriteGeoJSON(&gj, d); err != nil {
-		t.Fatal(err)
-	}
-	var geo struct {
-		Features []struct {
-			ID         string         `json:"id"`
-			Properties map[string]any `json:"properties"`
-		} `json:"features"`
-	}
-	if err := json.Unmarshal(gj.Bytes(), &geo); err != nil {
-		t.Fatal(err)
-	}
+	features := geoFeatures(t, d)
 	var fromGeo []string
-	for _, f := range geo.Features {
+	for _, f := range features {
 		if f.Properties["feature"] == "finding" {
 			fromGeo = append(fromGeo, f.ID)
 		}

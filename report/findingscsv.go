@@ -15,7 +15,7 @@ var findingsHeader = []string{
 	"severity", "kind", "conductor", "chainage_from_m", "chainage_to_m", "groups",
 	"east_m", "north_m", "up_m", "lon_deg", "lat_deg", "values", "message",
 	"value_name", "value", "value_sigma", "value_unit", "cover_m", "cover_sigma_m",
-	"id",
+	"id", "value_key", "value_keys",
 }
 
 // findingsMessage is the index of findings.csv's message column.
@@ -41,7 +41,13 @@ var findingsMessage = slices.Index(findingsHeader, "message")
 // text alone, where a crew could not sort by cover (found in review).
 // Last, id: the finding's id (FindingIDs), as results.json's findings[].id
 // and route.geojson's finding feature give it, so the files join on it
-// (empty on the cautions' and warnings' rows; added at the end).
+// (empty on the cautions' and warnings' rows; added at the end). Then
+// value_key, the machine key of the first value (the one in value_name:
+// ValueKey, as results.json's findings[].values[].key gives it), and
+// value_keys, the keys of all the values in the order of the values
+// column, joined by "; ": a program reads the values by key, as the
+// phrases in values and value_name may be reworded (added at the end
+// after id).
 // Numbers are written as results.csv writes them: a sigma to six
 // significant digits, a value to two digits past its sigma's leading one
 // (six significant digits without a sigma), cover to the millimetre at
@@ -138,6 +144,15 @@ func WriteFindingsCSVWith(w io.Writer, d *Document, opt CSVOptions) error {
 		}
 		row = append(row, findingNumbers(f.Values)...)
 		row = append(row, textCell(ids[fi]))
+		keys := make([]string, len(f.Values))
+		for k, v := range f.Values {
+			keys[k] = ValueKey(f.Kind, v)
+		}
+		first := ""
+		if len(keys) > 0 {
+			first = keys[0]
+		}
+		row = append(row, first, strings.Join(keys, "; "))
 		if err := cw.Write(row); err != nil {
 			return fmt.Errorf("report: writing findings CSV: %w", err)
 		}

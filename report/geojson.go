@@ -119,7 +119,7 @@ const (
 //     route's conductor, the track's number for a further one, as
 //     findings.csv gives it; absent for a lone line), "lone_line": true when it is about a further
 //     line that no conductor's track follows (Finding.Lone), and each of
-//     its values as a property named by valueKey ("step_a" and
+//     its values as a property named by its key (ValueKey: "step_a" and
 //     "step_sigma_a", "cover_m", ...).
 //
 // Sigmas count the reading noise (uncertainty_note of results.json);
@@ -152,7 +152,7 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 			"these features unless told the frame."
 	}
 	if p := d.PositionSigma; p != nil {
-		fc.SigmaNote = "Sigmas count " + p.Words() + ", as given with --position-sigma; a magnetised object's leave the positions' uncertainty out"
+		fc.SigmaNote = "Sigmas count " + p.Words() + ", " + p.Given() + "; a magnetised object's leave the positions' uncertainty out"
 	}
 	if r := d.Route; r != nil {
 		// conductor 1 named as its Points and findings name it, so that a
@@ -339,13 +339,16 @@ func WriteGeoJSON(w io.Writer, d *Document) error {
 			props["lone_line"] = true
 		}
 		for _, v := range f.Values {
-			k := valueKey(v)
+			// Named by the value's key (ValueKey), as results.json and
+			// findings.csv give it, its sigma with "_sigma" before the
+			// unit (sigmaKey).
+			k := ValueKey(f.Kind, v)
 			if _, taken := props[k]; taken {
 				continue
 			}
 			if v.Sigma > 0 {
 				props[k] = roundSig(v.Value, v.Sigma, 3)
-				props[valueKey(Value{Name: v.Name + " sigma", Unit: v.Unit})] = sigNum(v.Sigma)
+				props[sigmaKey(k, v.Unit)] = sigNum(v.Sigma)
 			} else {
 				props[k] = json.Number(sig(v.Value))
 			}
@@ -611,38 +614,6 @@ func (d *Document) stretchLine(f *Finding) (geometry, bool) {
 		return geometry{}, false
 	}
 	return d.line(pts), true
-}
-
-// valueKey is the property name of a finding's value: its name in
-// lower case with every run of other characters one underscore, then its
-// unit the same way ("step" in A: "step_a"; "location (chainage)" in m:
-// "location_chainage_m"; "reduced chi-square": "reduced_chi_square"; "%":
-// "pct"; a power joins its unit, "moment" in A m^2: "moment_a_m2", as the
-// object feature names it), so that a GIS can label and filter findings by
-// their numbers.
-func valueKey(v Value) string {
-	clean := func(s string) string {
-		s = strings.NewReplacer("%", "pct", "^2", "2", "^3", "3").Replace(strings.ToLower(s))
-		var b strings.Builder
-		under := false
-		for _, r := range s {
-			if r >= 'a' && r <= 'z' || r >= '0' && r <= '9' {
-				if under && b.Len() > 0 {
-					b.WriteByte('_')
-				}
-				b.WriteRune(r)
-				under = false
-			} else {
-				under = true
-			}
-		}
-		return b.String()
-	}
-	k := clean(v.Name)
-	if u := clean(strings.ReplaceAll(v.Unit, "/", " per ")); u != "" {
-		k += "_" + u
-	}
-	return k
 }
 
 // round returns v rounded to prec decimals as a JSON number.

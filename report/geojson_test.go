@@ -195,7 +195,9 @@ func TestGeoJSONObjectMomentFromVector(t *testing.T) {
 }
 
 // TestGeoJSONFindingValues: a finding's values are properties a GIS can
-// label and filter by, named from the value's name and unit.
+// label and filter by, named by the value's key (ValueKey): its name
+// and unit in snake case for the keys of this version, a sigma's with
+// "_sigma" before the unit.
 func TestGeoJSONFindingValues(t *testing.T) {
 	for _, tc := range []struct {
 		v    Value
@@ -212,8 +214,12 @@ func TestGeoJSONFindingValues(t *testing.T) {
 		{Value{Name: "moment sigma", Unit: "A m^2"}, "moment_sigma_a_m2"},
 		{Value{Name: "volume", Unit: "m^3"}, "volume_m3"},
 	} {
-		if got := valueKey(tc.v); got != tc.want {
-			t.Errorf("valueKey(%q, %q) = %q, want %q", tc.v.Name, tc.v.Unit, got, tc.want)
+		got := phraseKey(tc.v.Name, tc.v.Unit)
+		if name, ok := strings.CutSuffix(tc.v.Name, " sigma"); ok {
+			got = sigmaKey(phraseKey(name, tc.v.Unit), tc.v.Unit)
+		}
+		if got != tc.want {
+			t.Errorf("key of %q in %q = %q, want %q", tc.v.Name, tc.v.Unit, got, tc.want)
 		}
 	}
 	d := fenwickLane(false)

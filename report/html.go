@@ -1,7 +1,6 @@
 package report
 
 import (
-	"bytes"
 	"fmt"
 	"html/template"
 	"io"
@@ -10,7 +9,6 @@ import (
 	"sort"
 	"strconv"
 	"strings"
-	"unicode/utf8"
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/vg"
@@ -49,18 +47,7 @@ func writeHTML(w io.Writer, d *Document, opt CSVOptions) error {
 	// The page says it is UTF-8: text that is not (a name from an input
 	// that was not) is written with U+FFFD for each bad byte run, in the
 	// text, the attributes and the plots alike (TestWritersValidUTF8).
-	var page bytes.Buffer
-	if err := crewTemplate.Execute(&page, v); err != nil {
-		return fmt.Errorf("report: writing HTML: %w", err)
-	}
-	b := page.Bytes()
-	if !utf8.Valid(b) {
-		b = bytes.ToValidUTF8(b, []byte("\uFFFD"))
-	}
-	if _, err := w.Write(b); err != nil {
-		return fmt.Errorf("report: writing HTML: %w", err)
-	}
-	return nil
+	return executePage(w, crewTemplate, v)
 }
 
 type view struct {
@@ -476,7 +463,7 @@ func sigmaNoteHTML(pos *PositionSigma) string {
 			"to a real conductor, errors in the sensor positions (--position-sigma counts their scatter where it is known). " +
 			"Real errors are often many times larger."
 	}
-	return "The ± figures of the fits (one standard deviation) count " + pos.Words() + ", as given with --position-sigma " +
+	return "The ± figures of the fits (one standard deviation) count " + pos.Words() + ", " + pos.Given() + " " +
 		"(a magnetised object's leave the positions' uncertainty out), " +
 		"not the error of the model: bends, a neighbouring conductor, the straight infinite line fitted " +
 		"to a real conductor, errors in the sensor positions beyond the uncertainty given (a shift that many readings share). " +

@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"slices"
 )
 
 // WriteJSON writes d as indented JSON followed by a newline, after
@@ -75,6 +76,9 @@ func ReadJSON(r io.Reader, name string) (*Document, error) {
 	// again on writing, from the document then.
 	for i := range d.Findings {
 		d.Findings[i].ID = ""
+		for k := range d.Findings[i].Values {
+			d.Findings[i].Values[k].Key = ""
+		}
 	}
 	if d.Route != nil {
 		for i := range d.Route.Stations {
@@ -190,7 +194,14 @@ func (d *Document) normalized() *Document {
 	c.Findings = make([]Finding, len(d.Findings))
 	copy(c.Findings, d.Findings)
 	for i, id := range d.FindingIDs() {
-		c.Findings[i].ID = id
+		f := &c.Findings[i]
+		f.ID = id
+		if f.Values != nil {
+			f.Values = slices.Clone(f.Values)
+			for k := range f.Values {
+				f.Values[k].Key = ValueKey(f.Kind, f.Values[k])
+			}
+		}
 	}
 	c.Groups = make([]Group, len(d.Groups))
 	copy(c.Groups, d.Groups)

@@ -350,19 +350,7 @@ func turnedWhy(g *aboveGroup) string {
 // mirrorFit fits the readings of p mirrored in the height z0 with Bx, By
 // negated (a line above the sensors turned into its image below them).
 func mirrorFit(p *inverse.Problem, set *inverse.Settings, z0 float64) *inverse.Result {
-	q := &inverse.Problem{Sigma: p.Sigma, Scale: p.Scale, Times: p.Times}
-	for _, r := range p.Points {
-		q.Points = append(q.Points, [3]float64{r[0], r[1], 2*z0 - r[2]})
-	}
-	for _, b := range p.Fields {
-		q.Fields = append(q.Fields, [3]float64{-b[0], -b[1], b[2]})
-	}
-	for _, b := range p.Phasors {
-		q.Phasors = append(q.Phasors, [3]complex128{-b[0], -b[1], b[2]})
-	}
-	for _, t := range p.Travel {
-		q.Travel = append(q.Travel, [3]float64{t[0], t[1], -t[2]})
-	}
+	q := mirrored(p, z0)
 	res, err := inverse.FitLines(q, set)
 	if err != nil {
 		return nil

@@ -39,6 +39,7 @@ func readCSV(t *testing.T, d *Document) []map[string]string {
 
 // geoFeatures writes d as GeoJSON and returns its features.
 func geoFeatures(t *testing.T, d *Document) []struct {
+	ID         string
 	Geometry   struct{ Type string }
 	Properties map[string]any
 } {
@@ -49,6 +50,7 @@ func geoFeatures(t *testing.T, d *Document) []struct {
 	}
 	var fc struct {
 		Features []struct {
+			ID         string
 			Geometry   struct{ Type string }
 			Properties map[string]any
 		}

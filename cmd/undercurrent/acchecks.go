@@ -423,23 +423,21 @@ func (pl demodPlan) harmonicsWindow(freq, win float64, h []int) float64 {
 // windowFits returns the samples a window of set.Window holds at the
 // plan's sample rate and the parameters calibrate.Demodulate fits in each
 // window with set (its own count: the signal's cosine and sine and a
-// constant, a linear term with Drift, the signal's change across the
-// window unless ConstantAmplitude, and each harmonic and mains line with
-// its change); Demodulate needs at least two samples more than
+// constant, the background's change with Drift (calibrate.DriftColumns),
+// the signal's change across the window unless ConstantAmplitude, and each
+// harmonic and mains line with its change); Demodulate needs at least two samples more than
 // parameters, to leave residuals to judge the fit by.
 func (pl demodPlan) windowFits(set *calibrate.DemodSettings) (samples, params int) {
 	h := len(set.Harmonics)
-	params = 3 + 2*h
-	if set.Drift {
-		params++
-	}
+	samples = int(math.Round(set.Window * pl.fs))
+	params = 3 + 2*h + calibrate.DriftColumns(set, samples, 1/pl.fs)
 	perLine := 2
 	if !set.ConstantAmplitude {
 		params += 4 + 2*h
 		perLine = 4
 	}
 	params += perLine * len(set.Nuisance)
-	return int(math.Round(set.Window * pl.fs)), params
+	return samples, params
 }
 
 // demodulate demodulates s at freq in windows of win seconds with the

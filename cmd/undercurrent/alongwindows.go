@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"path/filepath"
+	"slices"
 	"strconv"
 	"strings"
 
@@ -284,7 +285,7 @@ func autoAlongWindows(o *locateOptions, sv *survey) (length float64, why, warn s
 		x[i], y[i] = p[0], p[1]
 	}
 	f := footprintOf(x, y)
-	if !f.alongSwath() {
+	if !f.alongSwath() || walkedAcross(x, y, f) {
 		return 0, "", ""
 	}
 	// The noise the readings show (from neighbouring readings), else the
@@ -310,4 +311,97 @@ func autoAlongWindows(o *locateOptions, sv *survey) (length float64, why, warn s
 		return 0, "", twoTracksWarning("", sep)
 	}
 	return alongWindowLength(f.across), why, ""
+}
+
+// Traverses across the walk (walkedAcross): short traverses one after
+// another along a route make a footprint as long and narrow as a cart's
+// swath (21 traverses of 3 m, 2 m apart: 42 m long, 0.88 m RMS wide), but
+// each traverse already fixes a line crossing it, and windows of several
+// traverses only blurred the steps between them (placed to 8 m, not 2 m;
+// and their own windows were then called mislabelled traverses; found in
+// review).
+const (
+	// traverseMinReadings is the fewest readings a leg of the walk
+	// holds to count as a traverse: a cart's sensors, logged one after
+	// another across it, make legs of one reading a sensor.
+	traverseMinReadings = 10
+	// traverseSlant is the largest ratio of a leg's extent along the
+	// walk to its extent across it for a traverse (about 11° from
+	// square across the walk): a zig-zag's legs run slantwise.
+	traverseSlant = 0.2
+	// traverseWidth is the share of the swath's full width (sqrt(12)
+	// times its RMS width) a traverse's extent across reaches.
+	traverseWidth = 0.5
+	// traverseShare is the share of the readings that lie in traverses
+	// when the walk is one of traverses across it.
+	traverseShare = 0.5
+)
+
+// walkedAcross reports whether the readings at x, y (in the log's order),
+// whose footprint is f, were walked as traverses across f's direction:
+// the walk, cut into legs where its offset across f turns back (by a
+// quarter of the swath's full width, above position scatter), has at
+// least three legs of traverseMinReadings or more that each run square
+// across the walk (traverseSlant) over most of the swath's width
+// (traverseWidth), holding at least traverseShare of the readings. A
+// cart's sensors logged in turn make legs of a few readings; a zig-zag's
+// legs run slantwise along the walk; a walk straight along makes one leg.
+func walkedAcross(x, y []float64, f planFootprint) bool {
+	full := math.Sqrt(12) * f.across
+	turn := math.Max(0.25*full, 0.05)
+	var a, c []float64
+	for i := range x {
+		if math.IsNaN(x[i]) || math.IsNaN(y[i]) {
+			continue
+		}
+		de, dn := x[i]-f.c[0], y[i]-f.c[1]
+		a = append(a, de*f.t[0]+dn*f.t[1])
+		c = append(c, -de*f.t[1]+dn*f.t[0])
+	}
+	// Cut the walk into legs: a leg ends at its furthest offset across
+	// once the walk has come back from it by turn.
+	var cuts []int // each leg's first reading
+	dir, ext := 0.0, 0
+	for i := range c {
+		s := 0
+		if len(cuts) > 0 {
+			s = cuts[len(cuts)-1]
+		}
+		if i == 0 {
+			cuts = append(cuts, 0)
+			dir, ext = 0, 0
+			continue
+		}
+		switch {
+		case dir == 0:
+			if math.Abs(c[i]-c[s]) > turn {
+				dir, ext = math.Copysign(1, c[i]-c[s]), i
+			}
+		case dir*(c[i]-c[ext]) > 0:
+			ext = i
+		case dir*(c[ext]-c[i]) > turn:
+			// Turned back: the next leg starts after the furthest
+			// reading.
+			cuts = append(cuts, ext+1)
+			dir, ext = 0, ext+1
+			if math.Abs(c[i]-c[ext]) > turn {
+				dir, ext = math.Copysign(1, c[i]-c[ext]), i
+			}
+		}
+	}
+	cuts = append(cuts, len(c))
+	n, in := 0, 0
+	for k := 0; k+1 < len(cuts); k++ {
+		lo, hi := cuts[k], cuts[k+1]
+		if hi-lo < traverseMinReadings {
+			continue
+		}
+		aLo, aHi := slices.Min(a[lo:hi]), slices.Max(a[lo:hi])
+		cLo, cHi := slices.Min(c[lo:hi]), slices.Max(c[lo:hi])
+		if across := cHi - cLo; across >= traverseWidth*full && aHi-aLo <= traverseSlant*across {
+			n++
+			in += hi - lo
+		}
+	}
+	return n >= 3 && float64(in) >= traverseShare*float64(len(c))
 }

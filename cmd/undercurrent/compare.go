@@ -2,7 +2,6 @@ package main
 
 import (
 	"bufio"
-	"bytes"
 	"context"
 	"errors"
 	"fmt"
@@ -35,11 +34,18 @@ or gone, where the depth of cover changed (erosion, re-grading, a conductor
 re-laid: "now under the minimum cover" where it was not before), and
 whether the current along the route changed overall.
 
-Stations of conductor 1 are matched by chainage when both routes measure
-it from one place (their matched points lie within --tolerance in plan),
-else by their position in plan; further conductors by their offset from
-conductor 1 (within --tolerance) and their azimuth (within 20 degrees).
-Stations and conductors without a partner are listed. Two surveys placed
+NEW's stations are placed on OLD's chainage by projecting their plan
+positions onto OLD's route, and every chainage shown is OLD's; NEW's own
+offset is noted ("NEW's chainage starts 1.00 m along OLD's route").
+Stations of conductor 1 are matched along that chainage when both routes
+measure it from about one place (within --tolerance; their matched points
+within --tolerance in plan), else by their position in plan; further
+conductors by their offset from conductor 1 (within --tolerance) and their
+azimuth (within 20 degrees).
+Conductors without a partner are listed (one of NEW's with its current and
+locate's doubts, such as "not a buried conductor"), stations without one
+noted; NEW's stations between two of OLD's (a closer spacing) are compared
+with OLD interpolated along the route. Two surveys placed
 about different geodetic origins (logs with latitude and longitude each
 placed about their own first reading) are brought into OLD's frame; one
 placed about an origin and one in local metres only are refused.
@@ -55,49 +61,60 @@ ground, while a threshold alone would flag the noise of a poorly determined
 station.
 
 A transmitter or CP rectifier set differently changes every current by one
-factor. The ratio NEW/OLD along the route is tested for that: its level (the
-weighted mean of the stations that agree with the median ratio) and the most
-significant single step in it. When the level differs from 1 beyond both
-thresholds the station changes are measured beyond it (NEW - level x OLD),
-so a re-set rectifier is not read as a loss at every station; a step in the
-ratio is a loss that changed there. AC phases are not compared (they are
-not comparable between two walks).
+factor. The ratio NEW/OLD along the route is tested for that: its level and
+the most significant single step in it. When the level differs from 1
+beyond both thresholds the station changes are measured beyond it (NEW -
+level x OLD), so a re-set rectifier is not read as a loss at every station;
+a step in the ratio is a loss that changed there, bracketed on OLD's
+chainage by both walks' stations (widened past a station beside it whose
+ratio fits either side). Without a step the level
+is the weighted mean of the stations that agree with the median ratio; with
+one it is the ratio on the side the current flows from (DC currents are
+signed along increasing chainage), so a fall along the flow is a loss
+wherever the leak lies, and the stations past it are listed under the step.
+For AC (no direction) both sides' readings are given and each station is
+measured against its own side's. A change of depth shared by the stations
+(a sensor height or ground level given differently) is reported once and
+the stations' cover changes measured beyond it. AC phases are not compared
+(they are not comparable between two walks).
 
 Prints a table of the matched stations (flagged changes marked *), the
 ratio, the current steps and a list of what changed, with the safety
 cautions; --json prints one JSON object instead (stable keys, the cautions
-first); -o FILE.csv also writes one row per matched station. Exits 0 when
+first); -o FILE.csv also writes one row per matched station, and -o
+FILE.html a self-contained page in the style of locate's report.html: the
+safety cautions first, the ratio NEW/OLD and what it means, the list of what
+changed, and per conductor the current and the cover of OLD and NEW along
+OLD's chainage (± two sigma, with the minimum cover) and the table of
+matched stations. Each file is written whole or not at all. For three or
+more surveys see trend. Exits 0 when
 the comparison was made, whatever it found; 1 when it cannot be (modes DC
-and AC, different AC frequencies, no route, no station in common, one file
-geo-referenced and the other not: the message names both files and what
-differs).
+and AC, different AC frequencies, no route, no station in common (the
+message gives the nearest separation and the --tolerance that would match),
+one file geo-referenced and the other not: the message names both files and
+what differs).
 
 Examples (after the README's "Comparing two surveys", which writes the
 result directories a, b, results and results2):
   undercurrent compare a b
   undercurrent compare results results2
   undercurrent compare --json results results2 > changes.json
-  undercurrent compare --min-current-change 0.05 --min-cover-change 0.15 results results2 -o changes.csv`,
+  undercurrent compare --min-current-change 0.05 --min-cover-change 0.15 results results2 -o changes.csv
+  undercurrent compare results results2 -o changes.html`,
 		setFlags: func(fs *pflag.FlagSet) {
 			fs.Float64Var(&set.MinCurrentChange, "min-current-change", 0, "flag a change of current only from `A` amperes (0: 5% of OLD's median current on each conductor)")
 			fs.Float64Var(&set.MinCoverChange, "min-cover-change", report.DefaultMinCoverChange, "flag a change of cover (or depth) only from `M` metres")
 			fs.Float64Var(&set.Sigmas, "sigmas", report.DefaultCompareSigmas, "flag a change only beyond `K` combined standard deviations")
 			fs.Float64Var(&set.Tolerance, "tolerance", report.DefaultTolerance, "stations within `M` metres (along the route, or in plan) are one station")
 			fs.BoolVar(&asJSON, "json", false, "print the comparison as one JSON object instead of the table")
-			fs.StringVarP(&out, "output", "o", "", "also write one row per matched station to CSV `FILE` (.csv); an existing FILE is replaced only when compare wrote it")
+			fs.StringVarP(&out, "output", "o", "", "also write `FILE`: .csv one row per matched station, .html the page for a manager (cautions, ratio, what changed, plots); an existing FILE is replaced only when compare wrote it")
 		},
 		run: func(ctx context.Context, fs *pflag.FlagSet, args []string, stdout, stderr io.Writer) error {
 			if len(args) != 2 {
 				return usageErrorf("compare takes two results, OLD and NEW (got %d arguments)", len(args))
 			}
-			for _, f := range []struct {
-				name string
-				v    float64
-				pos  bool
-			}{{"--min-current-change", set.MinCurrentChange, false}, {"--min-cover-change", set.MinCoverChange, true}, {"--sigmas", set.Sigmas, true}, {"--tolerance", set.Tolerance, true}} {
-				if f.v < 0 || f.pos && f.v == 0 || f.v != f.v {
-					return usageErrorf("%s %g: must be a positive number", f.name, f.v)
-				}
+			if err := checkCompareSettings(set); err != nil {
+				return err
 			}
 			if out != "" {
 				if err := checkCompareOut(out, args); err != nil {
@@ -117,12 +134,8 @@ result directories a, b, results and results2):
 				return err
 			}
 			if out != "" {
-				tmp, err := stageFile(out, ".csv", func(w io.Writer) error { return report.WriteComparisonCSV(w, c) })
-				if err != nil {
+				if err := writeComparedOut(out, compareOutWriter(out, c)); err != nil {
 					return err
-				}
-				if err := placeFile(tmp, out, true); err != nil {
-					return writeError(out, tmp, err)
 				}
 			}
 			if asJSON {
@@ -160,33 +173,23 @@ func readCompared(path string) (*report.Document, string, error) {
 	return d, name, nil
 }
 
-// checkCompareOut checks -o FILE before any work: a .csv name in a
-// directory that exists, not an input, and replacing only a file compare
-// wrote.
+// checkCompareOut checks -o FILE before any work (checkComparedOut): a
+// .csv or .html name, not an input, replacing only a file compare wrote.
 func checkCompareOut(out string, ins []string) error {
-	if filepath.Ext(out) != ".csv" {
-		return usageErrorf("-o %s: give a .csv file's name", out)
-	}
-	if err := checkOutFile("-o", out, false); err != nil {
-		return err
-	}
-	for _, in := range ins {
-		if sameFile(in, out) || sameFile(filepath.Join(in, "results.json"), out) {
-			return usageErrorf("-o %s is an input", out)
+	return checkComparedOut("compare", out, ins, compareOutHeads)
+}
+
+// checkCompareSettings refuses compare's and trend's thresholds when
+// negative or not a number, and those that must be positive when zero.
+func checkCompareSettings(set report.CompareSettings) error {
+	for _, f := range []struct {
+		name string
+		v    float64
+		pos  bool
+	}{{"--min-current-change", set.MinCurrentChange, false}, {"--min-cover-change", set.MinCoverChange, true}, {"--sigmas", set.Sigmas, true}, {"--tolerance", set.Tolerance, true}} {
+		if f.v < 0 || f.pos && f.v == 0 || f.v != f.v {
+			return usageErrorf("%s %g: must be a positive number", f.name, f.v)
 		}
-	}
-	fi, err := existingOut("-o", out, "a file's name")
-	if err != nil || fi == nil || fi.Size() == 0 {
-		return err
-	}
-	b := make([]byte, len(compareCSVHead))
-	f, err := os.Open(out)
-	if err == nil {
-		_, err = io.ReadFull(f, b)
-		f.Close()
-	}
-	if err != nil || !bytes.Equal(b, []byte(compareCSVHead)) {
-		return usageErrorf("-o %s: the file exists and is not a table compare wrote: it is not replaced; choose another name", out)
 	}
 	return nil
 }

@@ -276,3 +276,84 @@ func TestLocateCutShortCoverWarned(t *testing.T) {
 		}
 	}
 }
+
+// splitByGroup writes the log at path as one log per group (its comment
+// lines and header in each), as loggers that start a file for each
+// traverse do, and returns their paths in order.
+func splitByGroup(t *testing.T, path string) []string {
+	t.Helper()
+	raw, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var head strings.Builder
+	var hdr []string
+	body := map[string]*strings.Builder{}
+	var order []string
+	for _, l := range strings.SplitAfter(string(raw), "\n") {
+		if strings.TrimSpace(l) == "" {
+			continue
+		}
+		cols := strings.Split(strings.TrimRight(l, "\r\n"), ",")
+		if strings.HasPrefix(l, "#") || hdr == nil {
+			if !strings.HasPrefix(l, "#") {
+				hdr = cols
+			}
+			head.WriteString(l)
+			continue
+		}
+		g := cols[slices.Index(hdr, "group")]
+		if body[g] == nil {
+			body[g] = &strings.Builder{}
+			order = append(order, g)
+		}
+		body[g].WriteString(l)
+	}
+	dir := t.TempDir()
+	var paths []string
+	for _, g := range order {
+		p := filepath.Join(dir, g+".csv")
+		if err := os.WriteFile(p, []byte(head.String()+body[g].String()), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		paths = append(paths, p)
+	}
+	return paths
+}
+
+// TestLocateShortTraversesOneFileEach: the wall of
+// TestLocateShortTraversesMidLog (T04-T06 stopped 1.2 m north of a 30 A
+// cable 1.5 m down), with each traverse in a file of its own. Each such
+// file's one traverse is both its first and its last, so the cut-short
+// rule named the three walled traverses (good fits) as cut short and left
+// them out of the route: 6 sound of 9 and "no current step can be
+// searched for between T03 and T07" (found in review, where a real
+// current loss's bracket grew from 4 m to 20 m so). A log of one group
+// says nothing of a cut at its ends: now none is named, all 9 are sound,
+// and no stretch of the route lacks a usable current. A log cut short
+// mid-traverse is still named (TestLocateLogCutMidTraverse).
+func TestLocateShortTraversesOneFileEach(t *testing.T) {
+	line := "kind = \"line\"\npoint = [0.0, 0.0, -1.5]\ndirection = [1.0, 0.0, 0.0]\ncurrent_a = 30.0"
+	logs := splitByGroup(t, trimGroups(t, yardScenario(t, 10, line), []string{"T04", "T05", "T06"}, -99, 1.2))
+	if len(logs) != 9 {
+		t.Fatalf("%d logs, want one for each of the 9 traverses", len(logs))
+	}
+	doc := locateInto[cutDoc](t, append([]string{"--group-by", "group", "--reference-z", "0"}, logs...)...)
+	sound := 0
+	for _, g := range doc.Groups {
+		if strings.Contains(g.Problem, "cut short") {
+			t.Errorf("%s, a traverse walked short in a file of its own, is named as cut short: %s", g.Key, g.Problem)
+		}
+		if g.OK && g.Problem == "" {
+			sound++
+		}
+	}
+	if sound != 9 {
+		t.Errorf("%d of %d traverses sound, want 9", sound, len(doc.Groups))
+	}
+	for _, f := range doc.Findings {
+		if strings.Contains(f.Message, "no current step can be searched for") {
+			t.Errorf("a stretch of the route is left without a usable current: %s", f.Message)
+		}
+	}
+}

@@ -44,9 +44,11 @@ const (
 	// the cycle's two times: a conductor crossed on every traverse, or a
 	// spike, makes jumps at no fixed time in a cycle.
 	intShare = 0.7
-	// intAlternate is the least share of successive switches, one at
-	// each of the cycle's two times, that must step in opposite
-	// directions (a field between two levels, not a recurring bump).
+	// intAlternate is the least share of the switches at the cycle's two
+	// times that must step as a field between two levels does (not a
+	// recurring bump): away from the run's background at one time and
+	// towards it at the other (intLevels), or, of successive switches,
+	// in opposite directions.
 	intAlternate = 0.7
 	// intMinPeriod is the shortest cycle looked for, in reading
 	// intervals: the cycle's two times, each a reading either side,
@@ -83,6 +85,7 @@ type intJumpAt struct {
 	t   float64    // s, from the log's first reading
 	v   [3]float64 // the jump less its neighbours' steps, nT
 	run int
+	i   int // the jump is between readings i and i+1 of the log
 }
 
 // intRuns returns the runs of s's readings between gaps, group changes
@@ -209,7 +212,7 @@ func intJumps(s *ingest.Samples) ([]intJumpAt, float64, int) {
 			continue
 		}
 		t := 0.5*(s.Time[c.i]+s.Time[c.i+1]) - t0
-		jumps = append(jumps, intJumpAt{t: t, v: c.e, run: c.run})
+		jumps = append(jumps, intJumpAt{t: t, v: c.e, run: c.run, i: c.i})
 	}
 	return jumps, 1 / fs, len(runs)
 }
@@ -409,8 +412,19 @@ func findInterruption(s *ingest.Samples, hint float64) (interruption, bool) {
 			}
 		}
 	}
-	// Successive switches at the two times step in opposite directions,
-	// and a at one time, by the direction of the field at both levels.
+	// The switches step as a field between two levels does. The
+	// conductor's field at a reading is its distance from the background
+	// (B - bg), and a switch scales it: towards the stronger level the
+	// jump points along it, towards the weaker against it, wherever the
+	// reading lies. So one of the cycle's two times holds switches that
+	// move the field away from the run's background, the other switches
+	// that move it back (intLevels). Successive switches stepping in
+	// opposite directions, the test before, holds only where they lie
+	// close together: at 12 s on and 3 s off an on-switch and the next
+	// off-switch lie 9.6 m apart, often either side of a pipe, where its
+	// field points the other way, and the cycle was missed at 18 of 30
+	// phases (review rv27b). Either test passing names the cycle; a
+	// cycle the user gives (hint) needs only its switches at two times.
 	which := func(k int) int {
 		switch {
 		case near(ph[k], ca) <= tol:
@@ -439,7 +453,9 @@ func findInterruption(s *ingest.Samples, hint float64) (interruption, bool) {
 			opposite++
 		}
 	}
-	if pairs < intMinSwitches/4 || float64(opposite) < intAlternate*float64(pairs) {
+	alternate := pairs >= intMinSwitches/4 && float64(opposite) >= intAlternate*float64(pairs)
+	levels, counted := intLevels(s, jumps, which)
+	if hint <= 0 && !alternate && !(counted >= intMinSwitches && float64(levels) >= intAlternate*float64(counted)) {
 		return interruption{}, false
 	}
 	// The stronger level: the one at which the field varies more along
@@ -493,6 +509,53 @@ func findInterruption(s *ingest.Samples, hint float64) (interruption, bool) {
 	}
 	c.start += t0
 	return c, true
+}
+
+// intLevels judges each jump at one of the cycle's two times (which gives
+// 0 or 1, or -1 for neither) against the run's background, the median of
+// each component over the run: a jump moves the field away from it when
+// |B(i+1) - bg| > |B(i) - bg|, that is when the jump's dot product with
+// B(i) + B(i+1) - 2 bg is above zero. It returns the switches that agree
+// with the better of the two assignments (time 0 away and time 1 back, or
+// the reverse), and the switches judged.
+func intLevels(s *ingest.Samples, jumps []intJumpAt, which func(k int) int) (agree, counted int) {
+	cols := [3][]float64{s.Bx, s.By, s.Bz}
+	_, gap := dcClock(s)
+	runs := intRuns(s, gap)
+	bg := make(map[int][3]float64)
+	var away [2][2]int // [time][0 back, 1 away]
+	buf := make([]float64, 0, 256)
+	for k, j := range jumps {
+		x := which(k)
+		if x < 0 || j.run < 0 || j.run >= len(runs) || j.i+1 >= s.Len() {
+			continue
+		}
+		b, ok := bg[j.run]
+		if !ok {
+			rn := runs[j.run]
+			for c := range cols {
+				buf = append(buf[:0], cols[c][rn[0]:rn[1]]...)
+				sort.Float64s(buf)
+				b[c] = buf[len(buf)/2]
+			}
+			bg[j.run] = b
+		}
+		var d float64
+		for c := range cols {
+			d += j.v[c] * (cols[c][j.i] + cols[c][j.i+1] - 2*b[c])
+		}
+		switch {
+		case d > 0:
+			away[x][1]++
+		case d < 0:
+			away[x][0]++
+		default:
+			continue
+		}
+		counted++
+	}
+	agree = max(away[0][1]+away[1][0], away[0][0]+away[1][1])
+	return agree, counted
 }
 
 // interruptedWarning names the cycle c found in the DC log at path.

@@ -121,6 +121,7 @@ var canonicalUnits = map[string]string{
 	ingest.ColTime: "s", ingest.ColX: "m", ingest.ColY: "m", ingest.ColZ: "m",
 	ingest.ColBx: "nT", ingest.ColBy: "nT", ingest.ColBz: "nT", ingest.ColF: "nT",
 	ingest.ColTemp: "C", ingest.ColRoll: "deg", ingest.ColPitch: "deg", ingest.ColYaw: "deg",
+	ingest.ColSigmaPlan: "m", ingest.ColSigmaUp: "m",
 }
 
 // inspectedColumn is a column of inspect's JSON: ingest's statistics with

@@ -59,7 +59,7 @@ overhead = true
 // a 25 A cable (the case found in review: the cable read 29 A). The field
 // is the Biot-Savart law (the simulator's, checked against published
 // values in inverse's forward tests). Without --line-above the cable's
-// current is many sigma off; with it every traverse's current is within
+// current is many sigma off (--line-above=false; it is on by default); with it every traverse's current is within
 // 3 sigma of 25 A, the line above is reported apart (results.json
 // lines_above_sensors: its kind, 50 A, 11.7 m up) and no group carries it
 // as a buried source.
@@ -67,7 +67,7 @@ func TestLineAboveBesideCable(t *testing.T) {
 	dir := t.TempDir()
 	text := lineAboveScenario(t, func(s string) string { return s + overheadLine })
 	_, log := simulateScenario(t, dir, "overhead", text)
-	off := locateInto[lineAboveDoc](t, "--group-by", "group", "--sensor-height", "0.3", log)
+	off := locateInto[lineAboveDoc](t, "--group-by", "group", "--sensor-height", "0.3", "--line-above=false", log)
 	biased := 0
 	for _, g := range off.Groups {
 		if len(g.Sources) > 0 && math.Abs(math.Abs(g.Sources[0].Current)-25) > 3*g.Sources[0].CurrentSigma {

@@ -96,6 +96,12 @@ type locateOptions struct {
 	// values, m (inverse.Settings.PositionSigmaPlan, PositionSigmaUp).
 	positionSigma  string
 	posPlan, posUp float64
+	// posColumns is --position-sigma-columns as given (1sigma, 95 or
+	// off), and colPlan, colUp the factors that turn the log's position
+	// sigma columns (ingest.ColSigmaPlan, ColSigmaUp) into one-sigma per
+	// axis: 1, or 1/2.448 and 1/1.960 for 95% figures; 0 with off.
+	posColumns     string
+	colPlan, colUp float64
 	noise          float64
 	rangeNT        float64 // --range-nt: the magnetometer's range, nT (clipped.go); 0 none given
 	robust         bool
@@ -180,6 +186,7 @@ func (o *locateOptions) setFlags(fs *pflag.FlagSet) {
 	fs.Float64Var(&o.referenceZ, "reference-z", 0, "report depths below the ground surface at up = `Z` metres, one flat level for the whole survey, instead of below the sensors' mean height; up is the log's local frame (on a latitude/longitude/height log, relative to the origin's height, by default the first reading's), so a ground height of G in the log's datum is Z = G minus the origin's height; warned when it lies above the sensors or does not fit a route whose sensors climb")
 	fs.StringArrayVar(&o.sensorHeights, "sensor-height", nil, "the sensors were carried `H` metres above the ground (cover = depth - H); for logs of crews whose sensors stood at different heights give each its own as LOG=H, again for each (LOG the log as given or its base name), and a bare H for the logs not named; with several sensors at different heights, H is the mean height of all of them; with heights in the log, the ground over each line is taken as the sensors' height where they pass over it minus H, else the ground is taken as level under each traverse")
 	fs.Float64Var(&o.groundSigma, "ground-sigma", 0, "the ground level is known to `S` metres (one sigma) from the depth reference, e.g. how steadily the sensors were held above it; added to the cover sigmas (which otherwise cover the reading noise only); an unsteady height that is not logged also biases the depths and makes their sigmas too small, which S does not mend: log the heights, or state the wander with --position-sigma")
+	fs.StringVar(&o.posColumns, "position-sigma-columns", "1sigma", "what the log's own per-reading position uncertainty columns hold (sigma_plan and sigma_up, or a receiver's hacc/vacc, horizontal_accuracy/vertical_accuracy, sigma_h/sigma_v; their unit by suffix or --unit, as hacc_mm): `MODE` 1sigma (one sigma, the plan's per axis: the default), 95 (95% figures: a horizontal radius, divided by 2.45, and a vertical half-width, by 1.96) or off (not used); each reading's variance then takes its own, as --position-sigma takes one for the run, and as an upper bound too; with --position-sigma given as well, each reading takes the larger (the flag a floor); DC readings only (AC windows take --position-sigma)")
 	fs.StringVar(&o.positionSigma, "position-sigma", "", "the logged positions are known to `H[,V]` metres (one sigma, independent from reading to reading): H across the plan (east and north, each), V in height (a sensor height that wanders unlogged on a walked pole or rough ground; default: H); the fits then weigh each reading by its whole variance, the field's change over that position error added to the reading noise, and correct the mean change it makes, so the sigmas of current, depth, offset and cover include positioning error; the values are an upper bound, the fit taking from the residuals how much of each they bear (so margin is safe), and errors that are not independent from reading to reading (a shifted traverse, a drift, an odometer that slips) are not covered (e.g. --position-sigma 0.2,0.15 for satellite positions without corrections and a pole walked over rough ground); for AC, of each window's position; the count of conductors is chosen as without it; not with --robust")
 	fs.Float64Var(&o.noise, "noise", 0, "reading noise per axis, `NT` nanotesla, of each reading (for AC, each window's phasor then has NT/sqrt(samples in it)); default, or 0: estimated from the fits")
 	fs.Float64Var(&o.rangeNT, "range-nt", 0, "the magnetometer reads up to ±`NT` nanotesla on each axis: readings within a ten-thousandth of it (or ten times --noise) are taken as clipped and left out of the fits, with a warning, and a reading beyond it is an error; without it, only readings repeating one value exactly at an axis's extreme are")
@@ -289,6 +296,19 @@ func (o *locateOptions) check(fs *pflag.FlagSet) error {
 	}
 	if err := o.parsePositionSigma(); err != nil {
 		return err
+	}
+	switch strings.TrimSpace(o.posColumns) {
+	case "1sigma", "":
+		o.colPlan, o.colUp = 1, 1
+	case "95":
+		// A 95% horizontal radius of a circular Gaussian is 2.448 sigma
+		// per axis (1 - exp(-r^2/2) = 0.95); a 95% vertical half-width
+		// 1.960 sigma.
+		o.colPlan, o.colUp = 1/2.448, 1/1.960
+	case "off":
+		o.colPlan, o.colUp = 0, 0
+	default:
+		return usageErrorf("--position-sigma-columns %q: want 1sigma, 95 or off", o.posColumns)
 	}
 	if o.noise < 0 || math.IsNaN(o.noise) || math.IsInf(o.noise, 0) {
 		return usageErrorf("--noise %g: want a noise level in nT >= 0", o.noise)
@@ -839,6 +859,12 @@ type group struct {
 	fields [][3]float64 // DC
 	stamps []float64    // DC: each reading's time, s (NaN when the log has none)
 	scale  []float64    // DC: each reading's current over the reference's mean (--current-reference), nil without one
+	// psig is (DC) each reading's own position sigmas, m, across the plan
+	// and in height, from the log's columns (ingest.ColSigmaPlan,
+	// ColSigmaUp, one sigma: --position-sigma-columns); NaN where a log
+	// gives none; nil when no log of the group has them. Shorter than
+	// points when the group's first logs had none (problem pads it).
+	psig [][2]float64
 	// noTimes leaves the stamps out of the DC fits' problem: the survey's
 	// current ramps were taken for a spatial shape (guardTimeRamps).
 	noTimes bool
@@ -880,6 +906,17 @@ type group struct {
 	memo *groupMemo
 }
 
+// ownSigmas reports whether any group's readings carry their own
+// position sigmas (the log's columns).
+func ownSigmas(sv *survey) bool {
+	for _, g := range sv.groups {
+		if g.psig != nil {
+			return true
+		}
+	}
+	return false
+}
+
 // problem is the group's readings as an inverse problem.
 func (g *group) problem(ac bool, noise float64) *inverse.Problem {
 	p := &inverse.Problem{Points: g.points, Sigma: noise}
@@ -895,6 +932,12 @@ func (g *group) problem(ac bool, noise float64) *inverse.Problem {
 		}
 	} else {
 		p.Fields, p.Scale = g.fields, g.scale
+		if g.psig != nil {
+			p.PositionSigmas = slices.Clone(g.psig)
+			for len(p.PositionSigmas) < len(g.points) {
+				p.PositionSigmas = append(p.PositionSigmas, [2]float64{math.NaN(), math.NaN()})
+			}
+		}
 		// The readings' times let the fit check for a current changing
 		// while the traverse was walked (inverse.CurrentRampNote); with a
 		// reference current (scale) the change is already modelled and the
@@ -916,6 +959,9 @@ type looseLog struct {
 }
 
 type survey struct {
+	// sigmaCols names the log columns read as position sigmas, with
+	// their unit: "hacc (mm)" (possigcols.go).
+	sigmaCols []string
 	// logHeights is each log's sensor height above the ground, m
 	// (--sensor-height, perlog.go), by its path as given; empty without
 	// the flag. datum is the height the depths are referred to
@@ -1250,6 +1296,11 @@ func readSurvey(ctx context.Context, o *locateOptions, logs []string) (_ *survey
 		sv.warnings = append(sv.warnings, warns...)
 		if err != nil {
 			return nil, withPerLogNote(err, logs)
+		}
+		if !sv.ac {
+			// The position sigma columns named, their zeros and units
+			// checked (possigcols.go).
+			sigmaColumns(o, sv, path, opts, s)
 		}
 		// A DC log in uT read as nT (unitslip.go).
 		if !o.coil.on() && !sv.ac && !o.read.fieldUnitGiven() {
@@ -2472,6 +2523,14 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 				s.Source, ungrouped, map[bool]string{true: "AC windows", false: "readings"}[sv.ac], map[bool]string{true: "position", false: o.groupBy}[o.windowed()]))
 		}
 	}()
+	// The log's own position sigmas (DC): NaN where it has no column.
+	own := o.colPlan > 0 && (s.SigmaPlan != nil || s.SigmaUp != nil)
+	at := func(v []float64, i int) float64 {
+		if v == nil {
+			return math.NaN()
+		}
+		return v[i]
+	}
 	if !sv.ac {
 		for i := range s.Len() {
 			key := ""
@@ -2483,11 +2542,20 @@ func addReadings(o *locateOptions, sv *survey, index map[string]*group, s *inges
 				continue
 			}
 			g := get(key)
+			if own {
+				for len(g.psig) < len(g.points) {
+					g.psig = append(g.psig, [2]float64{math.NaN(), math.NaN()})
+				}
+				g.psig = append(g.psig, [2]float64{at(s.SigmaPlan, i) * o.colPlan, at(s.SigmaUp, i) * o.colUp})
+			}
 			g.points = append(g.points, [3]float64{s.X[i], s.Y[i], s.Z[i]})
 			g.fields = append(g.fields, [3]float64{s.Bx[i], s.By[i], s.Bz[i]})
 			g.stamps = append(g.stamps, s.Time[i])
 		}
 		return nil
+	}
+	if own {
+		sv.warnings = append(sv.warnings, s.Source+": its position sigma columns are not used for AC windows (DC readings only): state the positions' uncertainty with --position-sigma")
 	}
 	// Stamps quantised coarser than the sampling (a steady 800 Hz written
 	// to the millisecond) are rebuilt on the sampling they fit, here so
@@ -2797,7 +2865,9 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 	if w := alongTracksWarning(o, sv, sv.groupCol); w != "" {
 		alerts = append(alerts, w)
 	}
-	if w := splitGroupsWarning(sv); w != "" {
+	// Windows cut by the run itself are no names a user gave: their
+	// traverses side by side are no mislabel.
+	if w := splitGroupsWarning(sv); w != "" && !o.windowed() {
 		alerts = append(alerts, w)
 	}
 	if sv.swings != nil {
@@ -2894,7 +2964,7 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 	}
 	// Positions that scatter from reading to reading (posjitter.go): the
 	// shared-misfit warning names them where they explain the misfit.
-	if w := positionJitter(sv, fits, o.posPlan > 0 || o.posUp > 0); w != "" {
+	if w := positionJitter(sv, fits, o.posPlan > 0 || o.posUp > 0 || ownSigmas(sv)); w != "" {
 		head.Warnings = append(head.Warnings, w)
 	}
 	// report.Build takes no context; its along-route analysis (the dipole
@@ -2923,6 +2993,8 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 	if err != nil {
 		return nil, err
 	}
+	// The columns read as position sigmas (possigcols.go).
+	nameSigmaColumns(doc, sv)
 	// The group the route starts at, in the warning that the order of
 	// the logs given set it (loggroups.go).
 	routeStartNote(doc)
@@ -3385,7 +3457,7 @@ func printSummary(w io.Writer, doc *report.Document, took time.Duration, walked 
 	if p := doc.PositionSigma; p != nil {
 		// The sigmas count the positions' uncertainty too (results.json's
 		// position_sigma and uncertainty_note, report.html say so).
-		fmt.Fprintf(w, "uncertainties count %s, as given with --position-sigma\n", p.Words())
+		fmt.Fprintf(w, "uncertainties count %s, %s\n", p.Words(), p.Given())
 	}
 	if robustGroups(doc) > 0 {
 		// The sigmas of Huber-weighted fits are large-sample ones (the

@@ -53,13 +53,25 @@ func symDiff(a, b []string) []string {
 // seed 2. Against the simulated truth (the scenario's vertices and the
 // traverses' lines, simulate.Scenario.Lines), on each seed:
 //
-//   - every traverse called poor lies within 8 m of an interior vertex of
-//     the 11 kV cable;
+//   - every traverse called poor lies within 10.5 m of an interior vertex
+//     of the 11 kV cable;
 //   - every traverse within 3 m of one is called poor, unless its fit
-//     holds a further line that takes up the bend (T17's weak steep line
-//     at the cable's dive on seed 1402: three sources where the two
+//     holds a further line that takes up the bend (T13's weak steep line
+//     where the cable rises on seed 1402: three sources where the two
 //     cables give two);
-//   - the traverses called poor on any two seeds differ by at most one.
+//   - the traverses called poor on any two seeds differ by at most two,
+//     leaving out those fitted with such a further line on any seed.
+//
+// The bounds were 8 m and one traverse while the demo's cables stopped
+// dead 25 m beyond the end traverses: the open ends' field made the end
+// stations' fits miss by about twice the noise, and those set the
+// reference noise at 1.18 nT. With the cables run on (to the substations
+// and a feeder pillar hundreds of metres away) it is 0.78 nT against the
+// windows' 0.57 nT, and the misfit of a vertex one traverse length (10 m)
+// away shows: T26, 10.0 m from the vertex at 135 m, is called poor on
+// every seed (with information, its sigma widened), and T10 and T21, 7 m
+// from the dip at 52 m and 9.9 m from the bend at 90 m, on seeds 2 and 5
+// but not on 1402.
 func TestDemoPoorFitsSteadyAcrossSeeds(t *testing.T) {
 	path := filepath.Join("..", "..", simulate.DemoPath)
 	sc, err := simulate.Load(path)
@@ -81,6 +93,7 @@ func TestDemoPoorFitsSteadyAcrossSeeds(t *testing.T) {
 	}
 	dir := t.TempDir()
 	var sets [][]string
+	more := map[string]bool{} // traverses fitted with a further line on some seed
 	seeds := []int{1402, 2, 5}
 	for _, seed := range seeds {
 		log := filepath.Join(dir, fmt.Sprintf("demo-%d.csv", seed))
@@ -90,11 +103,14 @@ func TestDemoPoorFitsSteadyAcrossSeeds(t *testing.T) {
 		sets = append(sets, poor)
 		t.Logf("seed %d: poor fits %v", seed, poor)
 		for _, k := range poor {
-			if near[k] > 8 {
+			if near[k] > 10.5 {
 				t.Errorf("seed %d: %s called poor, %.1f m from the nearest vertex of the cable", seed, k, near[k])
 			}
 		}
 		for _, g := range doc.Groups {
+			if len(g.Sources) > 2 {
+				more[g.Key] = true
+			}
 			if near[g.Key] <= 3 && len(g.Sources) <= 2 && !slices.Contains(poor, g.Key) {
 				t.Errorf("seed %d: %s, %.1f m from a vertex of the cable and fitted with %d lines, not called poor", seed, g.Key, near[g.Key], len(g.Sources))
 			}
@@ -102,8 +118,9 @@ func TestDemoPoorFitsSteadyAcrossSeeds(t *testing.T) {
 	}
 	for i := range sets {
 		for j := i + 1; j < len(sets); j++ {
-			if d := symDiff(sets[i], sets[j]); len(d) > 1 {
-				t.Errorf("seeds %d and %d: the poor fits differ at %v, want at most one traverse", seeds[i], seeds[j], d)
+			d := slices.DeleteFunc(symDiff(sets[i], sets[j]), func(k string) bool { return more[k] })
+			if len(d) > 2 {
+				t.Errorf("seeds %d and %d: the poor fits differ at %v, want at most two traverses", seeds[i], seeds[j], d)
 			}
 		}
 	}

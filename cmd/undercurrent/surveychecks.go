@@ -351,7 +351,8 @@ const alongAngle = 15
 // the log runs along (within alongAngle): fitted one by one, such groups
 // see nothing of it (the field of a long straight conductor is the same at
 // every point of a line parallel to it, and the background takes it), so
-// --group-by is no cure; "" otherwise. Seven lines walked along a 10 A
+// --group-by is no cure; "" otherwise, and "" when the readings were
+// walked as traverses across the walk (walkedAcross). Seven lines walked along a 10 A
 // cable, told to use --group-by, each then read "no conductor is detected"
 // (found in review).
 func alongGroupsWarning(sv *survey, gl groupLines) string {
@@ -365,6 +366,17 @@ func alongGroupsWarning(sv *survey, gl groupLines) string {
 	d := res.Sources[0].Dir
 	h := math.Hypot(d[0], d[1])
 	if !(h > 0) {
+		return ""
+	}
+	// Short traverses one after another along a route, each across the
+	// walk: the one fit of them all may lay its line along the traverses
+	// (21 traverses of 3 m: a line 0.05 m below the sensors), but they are
+	// traverses, which --group-by fits (walkedAcross).
+	x, y := make([]float64, len(sv.groups[0].points)), make([]float64, len(sv.groups[0].points))
+	for i, p := range sv.groups[0].points {
+		x[i], y[i] = p[0], p[1]
+	}
+	if walkedAcross(x, y, footprintOf(x, y)) {
 		return ""
 	}
 	cosMin := math.Cos(alongAngle * math.Pi / 180)

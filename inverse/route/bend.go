@@ -312,7 +312,18 @@ func mergeBends(fs []Finding, ps []Placed) []Finding {
 		k := g.Keys[0]
 		if bd := bend[k]; bd != nil && !merged[k] {
 			g.Message += "; " + bendClause(bd, bd.between)
-			g.Values = append(g.Values, bendValues(bd)...)
+			vs := bendValues(bd)
+			if g.Kind == KindWeakSource {
+				// The weak source's own "current" leads its values: the
+				// bent station's is named apart, so that the two do not
+				// share one name and key (report's findingValueKeys).
+				for i := range vs {
+					if vs[i].Name == "current" {
+						vs[i].Name = "current at the bend"
+					}
+				}
+			}
+			g.Values = append(g.Values, vs...)
 			if g.Kind == KindPoorFit {
 				g.Reasons = append(g.Reasons, bendClause(bd, bd.between))
 			}

@@ -62,7 +62,12 @@ func TestCoverBracketHoldsTrueCrossings(t *testing.T) {
 		}
 		s := (minCover - ca) / (cb - ca)
 		x := [3]float64{v[i][0] + s*(v[i+1][0]-v[i][0]), v[i][1] + s*(v[i+1][1]-v[i][1]), minCover}
-		cross = append(cross, chainage(x))
+		// The cable's risers into the switchgear at both substations,
+		// hundreds of metres beyond the survey, come up through 0.60 m
+		// too: only crossings along the surveyed route count.
+		if ch := chainage(x); !math.IsNaN(ch) {
+			cross = append(cross, ch)
+		}
 	}
 	// The reviewer's reading of the scenario: about 55.8 and 74.2 m.
 	if len(cross) != 2 || !(cross[0] > 55 && cross[0] < 60) || !(cross[1] > 70 && cross[1] < 75) {

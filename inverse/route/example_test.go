@@ -36,6 +36,6 @@ func ExampleBuild() {
 	}
 	// Output:
 	// route length 125 m
-	// warning current-step 50-75 m: current falls by 0.817 ± 0.051 A between T03 (chainage 50.0 m) and T04 (75.0 m): current leaving the conductor there, or the supply's current changed from the walk of one traverse to the other's (walk one again to tell); levels either side 4.007 A and 3.190 A (3 and 3 stations); only 6 usable stations, too few to estimate scatter between stations beyond the fits' own uncertainties, so the uncertainty may be too small
+	// warning current-step 50-75 m: current falls by 0.817 ± 0.051 A between T03 (chainage 50.0 m) and T04 (75.0 m): current leaving the conductor there (to earth at a coating defect, a leak or a fault, or along a branch: a tee or a bond), or the supply's current changed from the walk of one traverse to the other's (walk one again to tell); levels either side 4.007 A and 3.190 A (3 and 3 stations); only 6 usable stations, too few to estimate scatter between stations beyond the fits' own uncertainties, so the uncertainty may be too small
 	// warning shallow-cover 75-125 m: cover at T05 (chainage 100.0 m) is 0.540 ± 0.020 m: it is less than the 0.60 m minimum (NEC Table 300.5); the shallow stretch may reach back to T04 (chainage 75.0 m) and on to T06 (chainage 125.0 m), the nearest stations either side with enough cover
 }

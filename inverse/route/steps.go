@@ -823,7 +823,12 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64, bs 
 			up, down = down, up
 			along = ", in the direction the current flows (toward decreasing chainage)"
 		}
-		verb, why := "falls", "current leaving the conductor there"
+		// A fall names a branch beside a defect, as a rise names one
+		// beside a source: current carried off along a tee or a bond
+		// reads the same as current lost to earth, and a fall worded as
+		// a loss alone read as a dig site at a tee (review rv27b: a 0.3 A
+		// service teed off a gas main).
+		verb, why := "falls", leavingWhy
 		if down > up {
 			verb, why = "rises", "current joining the conductor there (a bond, a tee or another source)"
 		}
@@ -838,7 +843,7 @@ func stepFindings(u, uo []*Placed, d *detection, set *Settings, tau float64, bs 
 			first, second, along, fed = a, b, "", ""
 			verb, why, turn = "rises", "current joining the conductor there (a bond, a tee or another source)", "away from there both ways"
 			if pl.before > 0 {
-				verb, why, turn = "falls", "current leaving the conductor there", "toward there from both ways"
+				verb, why, turn = "falls", leavingWhy, "toward there from both ways"
 			}
 		}
 		what := "current"
@@ -1575,3 +1580,7 @@ func pronoun(n int) string {
 	}
 	return "it"
 }
+
+// leavingWhy is what a fall of DC or AC current at a step may be: current
+// leaving to earth, or carried off along a branch.
+const leavingWhy = "current leaving the conductor there (to earth at a coating defect, a leak or a fault, or along a branch: a tee or a bond)"

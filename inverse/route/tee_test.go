@@ -193,3 +193,34 @@ func TestWideTransitionNotDetermined(t *testing.T) {
 		}
 	}
 }
+
+// TestFallAtTeeNamesBranch: the 15 A leaving the Corran Leys feeder into
+// its branch (both seeds) is a fall whose message names a branch, a tee
+// or a bond, beside a loss to earth. Before, a fall named no branch
+// ("current leaving the conductor there"), while a rise named "a bond, a
+// tee or another source": a fall at a tee read as a coating defect to dig
+// for (review rv27b, a 0.3 A service teed off a gas main).
+func TestFallAtTeeNamesBranch(t *testing.T) {
+	for _, c := range []struct {
+		name string
+		st   []Station
+	}{{"seed 2", teeSeed2()}, {"seed 21", teeSeed21()}} {
+		r, err := Build(c.st, &Settings{SensorHeight: 0.3})
+		if err != nil {
+			t.Fatal(err)
+		}
+		falls := 0
+		for _, f := range teeSteps(r) {
+			if !strings.Contains(f.Message, "current falls") {
+				continue
+			}
+			falls++
+			if !strings.Contains(f.Message, "along a branch: a tee or a bond") || !strings.Contains(f.Message, "coating defect") {
+				t.Errorf("%s: the fall at the tee names no branch beside a defect: %s", c.name, f.Message)
+			}
+		}
+		if falls == 0 {
+			t.Errorf("%s: no fall found at the tee", c.name)
+		}
+	}
+}

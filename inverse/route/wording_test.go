@@ -350,12 +350,15 @@ func TestWeakSteepThresholds(t *testing.T) {
 // TestStepSaysBetweenOnce: a step's message names its bracket once ("between T03
 // and T04: current leaving the conductor there", not "... between them"), falling
 // or rising. The step is the Kestrel Moor spur's (spur) with 1 A lost or gained.
+// A fall names a branch (a tee or a bond) beside a loss to earth, as a rise
+// names one beside a source: before, a fall named none, and a fall at a tee
+// read as a coating defect to dig for (review rv27b).
 func TestStepSaysBetweenOnce(t *testing.T) {
 	for _, tc := range []struct {
 		step float64
 		want string
 	}{
-		{1, ": current leaving the conductor there, "},
+		{1, ": current leaving the conductor there (to earth at a coating defect, a leak or a fault, or along a branch: a tee or a bond), "},
 		{-1, ": current joining the conductor there (a bond, a tee or another source), "},
 	} {
 		r, err := Build(spur(1, tc.step, 15), nil)

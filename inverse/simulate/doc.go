@@ -76,6 +76,12 @@
 // "leaves" the conductor at a vertex is not given a return path: the step is
 // modelled as the field of the conductor alone, which is what a survey over
 // the conductor sees of current leaking to ground spread over a large volume.
+// So are a polyline's two ends: its current stops there. A cable stopped
+// short a few tens of metres beyond the survey has an end no real cable
+// has, and its field biases the end traverses' currents by many sigmas
+// (0.02-0.11 A of 42 A on the demo's for an end 25 m beyond the first
+// traverse). Run a conductor hundreds of metres beyond the survey unless it
+// truly ends there, as the demo's cables do.
 //
 // # Scenario files
 //

@@ -1,0 +1,583 @@
+package report
+
+import (
+	"encoding/json"
+	"fmt"
+	"html/template"
+	"io"
+	"sort"
+	"strings"
+)
+
+// A trend over three or more surveys of one route (undercurrent trend R1
+// R2 R3 ...): each survey is placed on the first's chainage frame by
+// Compare(first, survey) (its station matching, its geodetic reprojection,
+// its turned DC sign), so that one table gives every station's current and
+// cover in each survey; the supply ratio of each survey to the first is
+// that comparison's ratio level; and what changed between consecutive
+// surveys is Compare(previous, next)'s list of changes, its chainages taken
+// onto the first survey's frame.
+
+// Trend is the result of CompareSeries. Its JSON keys are stable: new keys
+// may be added, none renamed.
+type Trend struct {
+	// Cautions are the safety cautions, first as in results.json.
+	Cautions []string `json:"cautions"`
+	Kind     string   `json:"kind"` // "survey-trend"
+	Mode     string   `json:"mode"`
+	// DepthQuantity is "cover" when every comparison with the first gives
+	// the cover, "depth" when each gives the depth below the same
+	// reference, "" when they are not one quantity (then no depth is
+	// given).
+	DepthQuantity     string              `json:"depth_quantity"`
+	MinCurrentChangeA float64             `json:"min_current_change_a,omitempty"`
+	MinCoverChangeM   float64             `json:"min_cover_change_m"`
+	Sigmas            float64             `json:"sigmas"`
+	ToleranceM        float64             `json:"tolerance_m"`
+	MinCoverM         *float64            `json:"min_cover_m,omitempty"`
+	Notes             []string            `json:"notes,omitempty"`
+	Surveys           []TrendSurvey       `json:"surveys"`
+	Conductors        []TrendConductor    `json:"conductors"`
+	Intervals         []TrendInterval     `json:"intervals"`
+	Changes           []TrendChange       `json:"changes"`
+	pairs             []*Comparison       // Compare(first, k), k >= 1
+	steps             []*Comparison       // Compare(k-1, k)
+	maps              []map[int]chainMapF // per survey: its conductor -> first's chainage
+}
+
+type chainMapF struct {
+	first int // the first survey's conductor number
+	f     func(float64) float64
+}
+
+// TrendSurvey is one survey of the series, numbered from 1 in the order
+// given. SupplyRatio is its current over the first's on conductor 1 (the
+// ratio level of Compare(first, it); 1 for the first), SupplyChanged
+// whether that differs from 1 beyond the thresholds.
+type TrendSurvey struct {
+	Survey           int      `json:"survey"`
+	Name             string   `json:"name"`
+	Matched          int      `json:"matched_stations"`
+	SupplyRatio      *float64 `json:"supply_ratio,omitempty"`
+	SupplyRatioSigma *float64 `json:"supply_ratio_sigma,omitempty"`
+	SupplyChanged    bool     `json:"supply_changed"`
+}
+
+// TrendConductor is one conductor of the first survey, its number in each
+// survey (0 where none matched it) and its used stations.
+type TrendConductor struct {
+	Conductor int            `json:"conductor"`
+	InSurvey  []int          `json:"conductor_in_survey"`
+	Stations  []TrendStation `json:"stations"`
+}
+
+// TrendStation is one used station of the first survey and its value in
+// each survey (surveys[k] is survey k+1's; its key empty where no station
+// of that survey matched it).
+type TrendStation struct {
+	Key      string       `json:"key"`
+	Chainage float64      `json:"chainage_m"`
+	Surveys  []TrendValue `json:"surveys"`
+}
+
+// TrendValue is a station's current and cover (or depth, as the trend's
+// depth_quantity) in one survey, one sigma each.
+type TrendValue struct {
+	Survey       int      `json:"survey"`
+	Key          string   `json:"key,omitempty"`
+	Current      *float64 `json:"current_a,omitempty"`
+	CurrentSigma *float64 `json:"current_sigma_a,omitempty"`
+	Cover        *float64 `json:"cover_m,omitempty"`
+	CoverSigma   *float64 `json:"cover_sigma_m,omitempty"`
+}
+
+// TrendInterval is one pair of consecutive surveys: the ratio of the
+// later to the earlier on conductor 1 and how many changes were flagged.
+type TrendInterval struct {
+	From       int      `json:"from_survey"`
+	To         int      `json:"to_survey"`
+	Ratio      *float64 `json:"ratio,omitempty"`
+	RatioSigma *float64 `json:"ratio_sigma,omitempty"`
+	Changes    int      `json:"changes"`
+}
+
+// TrendChange is a change between consecutive surveys From and To, as
+// compare lists it (its message in From's chainage, as compare words it),
+// Conductor and ChainageM taken onto the first survey's numbering and
+// chainage.
+type TrendChange struct {
+	From int `json:"from_survey"`
+	To   int `json:"to_survey"`
+	Change
+}
+
+// CompareSeries compares three or more result documents of one route,
+// in the order given (oldest first). It refuses what Compare refuses for
+// any consecutive pair or any survey against the first.
+func CompareSeries(docs []*Document, names []string, s CompareSettings) (*Trend, error) {
+	if len(docs) < 2 || len(docs) != len(names) {
+		return nil, fmt.Errorf("report: CompareSeries: %d documents and %d names, want two or more of each", len(docs), len(names))
+	}
+	s = s.filled()
+	t := &Trend{Cautions: append([]string(nil), Cautions...), Kind: "survey-trend", Mode: docs[0].Signal.Mode,
+		MinCurrentChangeA: s.MinCurrentChange, MinCoverChangeM: s.MinCoverChange, Sigmas: s.Sigmas, ToleranceM: s.Tolerance,
+		Surveys: []TrendSurvey{}, Conductors: []TrendConductor{}, Intervals: []TrendInterval{}, Changes: []TrendChange{}}
+	one := 1.0
+	t.Surveys = append(t.Surveys, TrendSurvey{Survey: 1, Name: names[0], Matched: usedStations(docs[0]), SupplyRatio: &one, SupplyRatioSigma: ptr(0)})
+	t.pairs = []*Comparison{nil}
+	t.maps = []map[int]chainMapF{nil}
+	quantities := map[string]bool{}
+	for k := 1; k < len(docs); k++ {
+		c, err := Compare(docs[0], docs[k], names[0], names[k], s)
+		if err != nil {
+			return nil, err
+		}
+		t.pairs = append(t.pairs, c)
+		quantities[c.DepthQuantity] = true
+		sv := TrendSurvey{Survey: k + 1, Name: names[k], Matched: c.Matched}
+		if len(c.Conductors) > 0 && c.Conductors[0].Ratio != nil {
+			r := c.Conductors[0].Ratio
+			sv.SupplyRatio, sv.SupplyRatioSigma, sv.SupplyChanged = ptr(r.Level), ptr(r.LevelSigma), r.LevelApplied
+		}
+		t.Surveys = append(t.Surveys, sv)
+		for _, n := range c.Notes {
+			t.Notes = append(t.Notes, fmt.Sprintf("survey %d against survey 1: %s", k+1, n))
+		}
+		// Survey k's chainage along each of its conductors to the
+		// first's, by the matched stations.
+		m := map[int]chainMapF{}
+		for _, cc := range c.Conductors {
+			var cps []chainPair
+			for _, sc := range cc.Stations {
+				cps = append(cps, chainPair{sc.NewChainage, sc.Chainage})
+			}
+			m[cc.New] = chainMapF{first: cc.Old, f: chainMap(cps)}
+		}
+		t.maps = append(t.maps, m)
+		if c.MinCoverM != nil {
+			t.MinCoverM = c.MinCoverM
+		}
+	}
+	switch {
+	case len(quantities) == 1 && quantities["cover"]:
+		t.DepthQuantity = "cover"
+	case len(quantities) == 1 && quantities["depth"]:
+		t.DepthQuantity = "depth"
+	case quantities[""]:
+	default:
+		// Some give the cover and some the depth: the depth below the
+		// same reference, where every survey has one.
+		t.DepthQuantity = "depth"
+		for _, d := range docs[1:] {
+			if d.DepthReference.Kind != docs[0].DepthReference.Kind {
+				t.DepthQuantity = ""
+			}
+		}
+	}
+	if t.DepthQuantity == "" {
+		t.Notes = append(t.Notes, "depths not given: the surveys' depths are not measured below one reference and not all give the cover (locate --sensor-height or --reference-z on every survey)")
+	}
+	t.table(docs)
+	// Consecutive surveys.
+	t.steps = []*Comparison{nil}
+	for k := 1; k < len(docs); k++ {
+		var c *Comparison
+		if k == 1 {
+			c = t.pairs[1]
+		} else {
+			var err error
+			if c, err = Compare(docs[k-1], docs[k], names[k-1], names[k], s); err != nil {
+				return nil, err
+			}
+		}
+		t.steps = append(t.steps, c)
+		iv := TrendInterval{From: k, To: k + 1, Changes: len(c.Changes)}
+		if len(c.Conductors) > 0 && c.Conductors[0].Ratio != nil {
+			iv.Ratio, iv.RatioSigma = ptr(c.Conductors[0].Ratio.Level), ptr(c.Conductors[0].Ratio.LevelSigma)
+		}
+		t.Intervals = append(t.Intervals, iv)
+		for _, ch := range c.Changes {
+			tc := TrendChange{From: k, To: k + 1, Change: ch}
+			if k > 1 {
+				// Survey k's (OLD here) conductor and chainage onto the
+				// first's.
+				if cm, ok := t.maps[k-1][max(ch.Conductor, 1)]; ok {
+					if ch.Conductor > 0 {
+						tc.Conductor = cm.first
+					}
+					if ch.Chainage != nil {
+						tc.Chainage = ptr(cm.f(*ch.Chainage))
+					}
+				} else if ch.Chainage != nil {
+					tc.Chainage = nil // no frame to take it onto: the message has it
+				}
+			}
+			t.Changes = append(t.Changes, tc)
+		}
+	}
+	return t, nil
+}
+
+func usedStations(d *Document) int {
+	n := 0
+	for _, r := range allRoutes(d) {
+		for _, s := range r.r.Stations {
+			if s.Used {
+				n++
+			}
+		}
+	}
+	return n
+}
+
+type numberedRoute struct {
+	n int
+	r *Route
+}
+
+// allRoutes are d's route (conductor 1) and its further conductors'.
+func allRoutes(d *Document) []numberedRoute {
+	var out []numberedRoute
+	if d.Route != nil {
+		out = append(out, numberedRoute{1, d.Route})
+	}
+	for i := range d.Conductors {
+		out = append(out, numberedRoute{d.Conductors[i].Number, &d.Conductors[i].Route})
+	}
+	return out
+}
+
+// chainMap maps along cps (NEW's chainage to OLD's, any order): linear
+// between them, by the nearest pair's offset beyond them.
+func chainMap(cps []chainPair) func(float64) float64 {
+	cps = append([]chainPair(nil), cps...)
+	sort.Slice(cps, func(a, b int) bool { return cps[a].n < cps[b].n })
+	return func(x float64) float64 {
+		if len(cps) == 0 {
+			return x
+		}
+		if len(cps) == 1 || x <= cps[0].n {
+			return cps[0].o + (x-cps[0].n)*dirOf(cps)
+		}
+		for i := 1; i < len(cps); i++ {
+			if x <= cps[i].n {
+				a, b := cps[i-1], cps[i]
+				if b.n == a.n {
+					return a.o
+				}
+				return a.o + (x-a.n)*(b.o-a.o)/(b.n-a.n)
+			}
+		}
+		l := cps[len(cps)-1]
+		return l.o + (x-l.n)*dirOf(cps)
+	}
+}
+
+// table fills t.Conductors: the first survey's used stations and each
+// survey's value at them.
+func (t *Trend) table(docs []*Document) {
+	depthOf := func(st *Station) (*float64, *float64) {
+		switch t.DepthQuantity {
+		case "cover":
+			if st.Cover != nil && st.CoverSigma != nil {
+				return ptr(*st.Cover), ptr(*st.CoverSigma)
+			}
+		case "depth":
+			return ptr(st.Depth), ptr(st.DepthSigma)
+		}
+		return nil, nil
+	}
+	stationsOf := func(d *Document, n int) map[string]*Station {
+		m := map[string]*Station{}
+		for _, r := range allRoutes(d) {
+			if r.n == n {
+				for i := range r.r.Stations {
+					if r.r.Stations[i].Used {
+						m[r.r.Stations[i].Key] = &r.r.Stations[i]
+					}
+				}
+			}
+		}
+		return m
+	}
+	for _, nr := range allRoutes(docs[0]) {
+		tc := TrendConductor{Conductor: nr.n, InSurvey: make([]int, len(docs)), Stations: []TrendStation{}}
+		tc.InSurvey[0] = nr.n
+		// Per later survey: its comparison's stations of this conductor.
+		matched := make([]map[string]StationChange, len(docs))
+		newStations := make([]map[string]*Station, len(docs))
+		for k := 1; k < len(docs); k++ {
+			for _, cc := range t.pairs[k].Conductors {
+				if cc.Old != nr.n {
+					continue
+				}
+				tc.InSurvey[k] = cc.New
+				matched[k] = map[string]StationChange{}
+				for _, sc := range cc.Stations {
+					matched[k][sc.OldKey] = sc
+				}
+				newStations[k] = stationsOf(docs[k], cc.New)
+			}
+		}
+		for i := range nr.r.Stations {
+			st := &nr.r.Stations[i]
+			if !st.Used {
+				continue
+			}
+			row := TrendStation{Key: st.Key, Chainage: st.Chainage}
+			v := TrendValue{Survey: 1, Key: st.Key, Current: ptr(st.Current), CurrentSigma: ptr(st.CurrentSigma)}
+			v.Cover, v.CoverSigma = depthOf(st)
+			row.Surveys = append(row.Surveys, v)
+			for k := 1; k < len(docs); k++ {
+				v := TrendValue{Survey: k + 1}
+				if sc, ok := matched[k][st.Key]; ok {
+					v.Key, v.Current, v.CurrentSigma = sc.NewKey, ptr(sc.NewCurrent), ptr(sc.NewCurrentSig)
+					if ns := newStations[k][sc.NewKey]; ns != nil {
+						v.Cover, v.CoverSigma = depthOf(ns)
+					}
+				}
+				row.Surveys = append(row.Surveys, v)
+			}
+			tc.Stations = append(tc.Stations, row)
+		}
+		sort.SliceStable(tc.Stations, func(a, b int) bool { return tc.Stations[a].Chainage < tc.Stations[b].Chainage })
+		t.Conductors = append(t.Conductors, tc)
+	}
+}
+
+// WriteTrendJSON writes t as indented JSON.
+func WriteTrendJSON(w io.Writer, t *Trend) error {
+	b, err := json.MarshalIndent(t, "", "  ")
+	if err != nil {
+		return err
+	}
+	_, err = w.Write(append(b, '\n'))
+	return err
+}
+
+// WriteTrendText writes the trend for a terminal: the surveys and their
+// supply ratios, each conductor's table of current and cover per survey,
+// the changes between consecutive surveys and the cautions, first and
+// last.
+func WriteTrendText(w io.Writer, t *Trend) error {
+	var b strings.Builder
+	fmt.Fprintf(&b, "Trend over %d surveys of one route (%s), on survey 1's chainage.\n", len(t.Surveys), modeName(t.Mode))
+	fmt.Fprintf(&b, "Caution: %s\n", CautionShort)
+	for _, n := range t.Notes {
+		fmt.Fprintf(&b, "note: %s\n", n)
+	}
+	b.WriteString("\nSurveys (supply ratio: the current on conductor 1 over survey 1's):\n")
+	for _, s := range t.Surveys {
+		r := "-"
+		if s.SupplyRatio != nil {
+			r = pm(*s.SupplyRatio, *s.SupplyRatioSigma)
+			if s.SupplyChanged {
+				r += " (changed)"
+			}
+		}
+		fmt.Fprintf(&b, "  %d. %s: %d stations matched, supply ratio %s\n", s.Survey, s.Name, s.Matched, r)
+	}
+	q := orDepth(t.DepthQuantity)
+	for _, tc := range t.Conductors {
+		fmt.Fprintf(&b, "\nConductor %d: current (A) and %s (m) per survey, ± one sigma.\n", tc.Conductor, q)
+		fmt.Fprintf(&b, "%-10s %9s", "station", "chainage")
+		for _, s := range t.Surveys {
+			fmt.Fprintf(&b, " | %-18s %-16s", fmt.Sprintf("%d current", s.Survey), fmt.Sprintf("%d %s", s.Survey, q))
+		}
+		b.WriteString("\n")
+		for _, st := range tc.Stations {
+			fmt.Fprintf(&b, "%-10s %9.1f", st.Key, st.Chainage)
+			for _, v := range st.Surveys {
+				cur, cov := "-", "-"
+				if v.Current != nil {
+					cur = pm(*v.Current, *v.CurrentSigma)
+				}
+				if v.Cover != nil {
+					cov = pm(*v.Cover, *v.CoverSigma)
+				}
+				fmt.Fprintf(&b, " | %-18s %-16s", cur, cov)
+			}
+			b.WriteString("\n")
+		}
+	}
+	b.WriteString("\nBetween consecutive surveys:\n")
+	for _, iv := range t.Intervals {
+		r := ""
+		if iv.Ratio != nil {
+			r = ", ratio " + pm(*iv.Ratio, *iv.RatioSigma)
+		}
+		fmt.Fprintf(&b, "  %d -> %d%s: %s\n", iv.From, iv.To, r, plural(iv.Changes, "change"))
+		for _, ch := range t.Changes {
+			if ch.From == iv.From {
+				fmt.Fprintf(&b, "     [%s] %s\n", ch.Kind, ch.Message)
+			}
+		}
+	}
+	b.WriteString("\nCautions:\n")
+	for _, s := range t.Cautions {
+		fmt.Fprintf(&b, "  - %s\n", s)
+	}
+	_, err := io.WriteString(w, b.String())
+	return err
+}
+
+// trendView is what trendTemplate shows.
+type trendView struct {
+	Title, CautionShort string
+	T                   *Trend
+	Cautions            []string
+	Lead                string
+	Thresholds          string
+	Surveys             []trendSurveyRow
+	Changes             []changeRow
+	Conductors          []trendConductorView
+	CoverHead           string
+}
+
+// HasInterval is true: the trend's changes are between two surveys.
+func (v *trendView) HasInterval() bool { return true }
+
+type trendSurveyRow struct {
+	N                 int
+	Name, Ratio, Step string
+	Matched           int
+}
+
+type trendConductorView struct {
+	Number         int
+	Current, Cover template.HTML
+	Head           []int
+	Rows           []trendRow
+}
+
+type trendRow struct {
+	Key, Chainage string
+	Cells         []string
+}
+
+// WriteTrendHTML writes the trend as a self-contained HTML page in the
+// crew report's style: the cautions first, the surveys and their supply
+// ratios, the changes between consecutive surveys, and per conductor the
+// current and cover along survey 1's chainage (one line a survey, ± two
+// sigma, the minimum cover drawn) with the table of every station. The
+// page begins with TrendHTMLHead.
+func WriteTrendHTML(w io.Writer, t *Trend) error {
+	v := &trendView{Title: "Survey trend", CautionShort: CautionShort, T: t, Cautions: t.Cautions}
+	if len(v.Cautions) == 0 {
+		v.Cautions = Cautions
+	}
+	q := orDepth(t.DepthQuantity)
+	v.CoverHead = strings.ToUpper(q[:1]) + q[1:]
+	v.Lead = fmt.Sprintf("%d %s surveys of one route, on the first survey's chainage: %s between consecutive surveys beyond the thresholds.", len(t.Surveys), modeName(t.Mode), plural(len(t.Changes), "change"))
+	v.Thresholds = fmt.Sprintf("A change is listed only when it is beyond %g standard deviations (both surveys' in quadrature) and beyond the practical threshold (%g m of %s; for current, 5%% of the earlier survey's median current unless given). The standard deviations count the reading noise only.", t.Sigmas, t.MinCoverChangeM, q)
+	for _, s := range t.Surveys {
+		row := trendSurveyRow{N: s.Survey, Name: s.Name, Matched: s.Matched, Ratio: "–", Step: "–"}
+		if s.SupplyRatio != nil {
+			row.Ratio = pm(*s.SupplyRatio, *s.SupplyRatioSigma)
+			if s.SupplyChanged {
+				row.Ratio += " (the supply changed)"
+			}
+		}
+		if s.Survey > 1 {
+			iv := t.Intervals[s.Survey-2]
+			row.Step = plural(iv.Changes, "change")
+			if iv.Ratio != nil {
+				row.Step = "ratio " + pm(*iv.Ratio, *iv.RatioSigma) + ", " + row.Step
+			}
+		}
+		v.Surveys = append(v.Surveys, row)
+	}
+	for i, ch := range t.Changes {
+		v.Changes = append(v.Changes, changeRow{N: i + 1, Kind: ch.Kind, Where: changeWhere(ch.Change), Message: ch.Message, Interval: fmt.Sprintf("%d → %d", ch.From, ch.To)})
+	}
+	for _, tc := range t.Conductors {
+		what := "the route"
+		if tc.Conductor != 1 {
+			what = fmt.Sprintf("conductor %d", tc.Conductor)
+		}
+		cur := make([]seriesLine, len(t.Surveys))
+		cov := make([]seriesLine, len(t.Surveys))
+		cv := trendConductorView{Number: tc.Conductor}
+		for k, s := range t.Surveys {
+			cur[k].name, cov[k].name = fmt.Sprintf("survey %d", s.Survey), fmt.Sprintf("survey %d", s.Survey)
+			cv.Head = append(cv.Head, s.Survey)
+		}
+		for _, st := range tc.Stations {
+			row := trendRow{Key: st.Key, Chainage: fmt.Sprintf("%.1f", st.Chainage)}
+			for k, val := range st.Surveys {
+				c1, c2 := "–", "–"
+				if val.Current != nil {
+					cur[k].x, cur[k].y, cur[k].e = append(cur[k].x, st.Chainage), append(cur[k].y, *val.Current), append(cur[k].e, *val.CurrentSigma)
+					c1 = pm(*val.Current, *val.CurrentSigma)
+				}
+				if val.Cover != nil {
+					cov[k].x, cov[k].y, cov[k].e = append(cov[k].x, st.Chainage), append(cov[k].y, *val.Cover), append(cov[k].e, *val.CoverSigma)
+					c2 = pm(*val.Cover, *val.CoverSigma)
+				}
+				row.Cells = append(row.Cells, c1, c2)
+			}
+			cv.Rows = append(cv.Rows, row)
+		}
+		var err error
+		if cv.Current, cv.Cover, err = seriesFigures(what, cur, cov, t.DepthQuantity, t.MinCoverM, t.Mode == SignalAC); err != nil {
+			return err
+		}
+		v.Conductors = append(v.Conductors, cv)
+	}
+	return executePage(w, trendTemplate, v)
+}
+
+// twice returns 2n, for the table's colspans.
+func twice(n int) int { return 2 * n }
+
+var trendTemplate = template.Must(template.New("trend").Funcs(template.FuncMap{"twice": twice, "add": func(a, b int) int { return a + b }}).Parse(strings.TrimSuffix(TrendHTMLHead, "\n") + `
+<head>
+<meta charset="utf-8">
+<meta name="viewport" content="width=device-width, initial-scale=1">
+<title>{{.Title}}</title>
+` + crewStyle() + `
+</head>
+<body>
+<header>
+<h1>{{.Title}}</h1>
+<p class="sub">{{len .T.Surveys}} surveys, oldest first</p>
+</header>
+<main>
+` + pageCautions + `
+<section class="summary">
+<h2>Summary</h2>
+<p class="counts">{{.Lead}}{{if .Changes}} <a href="#changes">Go to what changed</a>.{{end}}</p>
+<div class="wide"><table>
+<thead><tr><th>Survey</th><th>Result</th><th>Stations matched</th><th>Supply ratio to survey 1</th><th>Since the survey before</th></tr></thead>
+<tbody>
+{{range .Surveys}}<tr><td class="num">{{.N}}</td><td><code>{{.Name}}</code></td><td class="num">{{.Matched}}</td><td class="num">{{.Ratio}}</td><td>{{.Step}}</td></tr>
+{{end}}</tbody>
+</table></div>
+<p>The supply ratio is the current on conductor 1 over survey 1's, weighted over the stations that agree with the median ratio: a ratio other than 1 along the whole route means the rectifier, transmitter or load feeding it changed, not a loss; a loss shows as a step in the ratio between two stations, listed under What changed.</p>
+<p class="howsure">{{.Thresholds}}</p>
+{{range .T.Notes}}<p class="note">{{.}}</p>
+{{end}}</section>
+` + pageChanges + `
+<p class="values">Each change is as compare words it for the two surveys, its chainages in the earlier one's; the Where column gives them on survey 1's chainage.</p>
+{{range .Conductors}}<section>
+<h2>{{if eq .Number 1}}Along the route{{else}}Conductor {{.Number}} along the route{{end}}</h2>
+<figure>{{.Current}}
+<figcaption>Fitted current of each survey at survey 1's stations (each survey's station matched to it), one line a survey, ± two standard deviations; the newest survey blue-green and solid, the earlier ones each with its own mark and line pattern. Current is signed along survey 1's direction of increasing chainage.</figcaption>
+</figure>
+{{if .Cover}}<figure>{{.Cover}}
+<figcaption>{{$.CoverHead}} of each survey at the same stations, drawn as the current above{{if $.T.MinCoverM}}, with the ground and the minimum cover (dashed red){{end}}.</figcaption>
+</figure>{{end}}
+<div class="wide"><table class="groups">
+<thead><tr class="print-only"><th colspan="{{add 2 (twice (len .Head))}}">{{$.CautionShort}}</th></tr>
+<tr><th>Station</th><th>Chainage (m)</th>{{range .Head}}<th>{{.}}: current (A)</th><th>{{.}}: {{$.CoverHead}} (m)</th>{{end}}</tr></thead>
+<tbody>
+{{range .Rows}}<tr><th scope="row">{{.Key}}</th><td class="num">{{.Chainage}}</td>{{range .Cells}}<td class="num">{{.}}</td>{{end}}</tr>
+{{end}}</tbody>
+</table></div>
+<p class="values">– where the survey has no station matched to survey 1's. Uncertainties are one standard deviation, from the reading noise only.</p>
+</section>
+{{end}}</main>
+<footer>Made by undercurrent trend. Positions in metres, currents in amperes{{if eq .T.Mode "ac"}} (RMS){{end}}. {{.CautionShort}}</footer>
+</body>
+</html>
+`))
