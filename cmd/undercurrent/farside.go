@@ -24,15 +24,42 @@ const alongGain = 50
 // main).
 const alongShiftK = 1.0
 
+// alongShare and alongMin are the route-wide guard on the along refits: the
+// background changing along the traverse is taken for every DC group or for
+// none, and only where at least alongMin groups, and alongShare of those the
+// refit was tried on, each need it (chooseAlong's gain and shift) with terms
+// that agree (alongAgree). A far line to the side reaches every traverse
+// alike; a cable's end, a tee, a bend or a cart's sensors make a misfit on a
+// few traverses that the three terms per group would otherwise soak up (in
+// review, 12 tests of this package failed with a per-group choice).
+const (
+	alongShare = 0.75
+	alongMin   = 4
+)
+
+// alongAgreeK and alongAgreeRel bound how far a group's along terms may lie
+// from the route's trend in them (a straight line in the group's order, which
+// holds a far line parallel to the route or slowly converging on it): within
+// alongAgreeK of the terms' combined sigmas plus alongAgreeRel of the trend's
+// size, per axis. On the rail cases (15 and 60 A, 40 m off) every group agreed.
+const (
+	alongAgreeK   = 3.0
+	alongAgreeRel = 0.25
+)
+
 // chooseAlong refits a DC group with a background that changes linearly along
-// the traverse (inverse.BackgroundAlong, three columns more) and keeps that fit
-// where the readings need it: chi-square lower by alongGain or more and the
-// strongest line's current or depth moved by alongShiftK of its sigmas or more.
-// A far line to the side (a traction return, another cable tens of metres away)
-// has a 1/r field whose change along a 16 m traverse a uniform background cannot
-// hold; it then went into the line's current and depth (12% low and 0.15 m
-// shallow for a 15 A rail return 40 m from a 1.5 A main, all 21 fits sound).
+// the traverse (inverse.BackgroundAlong, three columns more) and keeps that
+// fit as the group's candidate (g.along) with whether the group's readings
+// need it (g.alongNeed): chi-square lower by alongGain or more and the
+// strongest line's current or depth moved by alongShiftK of its sigmas or
+// more. Whether the candidates are taken is decided for the route at once
+// (decideAlong). A far line to the side (a traction return, another cable
+// tens of metres away) has a 1/r field whose change along a 16 m traverse a
+// uniform background cannot hold; it then went into the line's current and
+// depth (12% low and 0.15 m shallow for a 15 A rail return 40 m from a 1.5 A
+// main, all 21 fits sound).
 func chooseAlong(g *group, set *inverse.Settings, noise float64) {
+	g.along, g.alongNeed = nil, false
 	if g.err != nil || g.res == nil || len(g.res.Sources) == 0 || set.Background != inverse.BackgroundUniform || len(set.Above) > 0 || len(g.fields) < 20 {
 		return
 	}
@@ -43,20 +70,105 @@ func chooseAlong(g *group, set *inverse.Settings, noise float64) {
 	s := *set
 	s.Background = inverse.BackgroundAlong
 	r, err := inverse.FitLines(g.problem(false, noise), &s)
-	if err != nil || len(r.Sources) == 0 {
+	if err != nil || len(r.Sources) == 0 || len(r.Along) != 3 {
 		return
 	}
+	g.along = r
 	m := float64(3 * len(g.fields))
 	gain := (g.res.RMS*g.res.RMS - r.RMS*r.RMS) * m / (n * n)
 	if !(gain > alongGain) {
 		return
 	}
 	a, b := g.res.Sources[0], r.Sources[0]
-	moved := math.Abs(a.Current-b.Current) > alongShiftK*b.CurrentSigma || math.Abs(a.Depth-b.Depth) > alongShiftK*b.DepthSigma
-	if !moved {
-		return
+	g.alongNeed = math.Abs(a.Current-b.Current) > alongShiftK*b.CurrentSigma || math.Abs(a.Depth-b.Depth) > alongShiftK*b.DepthSigma
+}
+
+// decideAlong takes the along refits (chooseAlong) for every group that has
+// one, or for none: only when at least alongMin groups and alongShare of the
+// groups refitted need the term, and alongShare of those refitted have terms
+// that agree with the route's trend in them (alongAgreeing). It returns
+// whether it took them.
+func decideAlong(groups []*group) bool {
+	var tried, need []*group
+	for _, g := range groups {
+		if g.along == nil {
+			continue
+		}
+		tried = append(tried, g)
+		if g.alongNeed {
+			need = append(need, g)
+		}
 	}
-	g.res, g.bg = r, inverse.BackgroundAlong
+	take := len(need) >= alongMin && float64(len(need)) >= alongShare*float64(len(tried)) &&
+		float64(alongAgreeing(tried, need)) >= alongShare*float64(len(tried))
+	for _, g := range tried {
+		if take {
+			g.res, g.bg = g.along, inverse.BackgroundAlong
+		}
+		g.along = nil
+	}
+	return take
+}
+
+// alongAgreeing counts the groups of tried whose along terms lie within
+// alongAgreeK sigmas plus alongAgreeRel of the trend's size of a straight line
+// in the groups' order, fitted per axis (weighted by the terms' sigmas) to the
+// groups that need the term (need). A far line gives terms the same on every
+// traverse, or changing smoothly along the route; misfits local to a few
+// traverses do not.
+func alongAgreeing(tried, need []*group) int {
+	idx := make(map[*group]float64, len(tried))
+	for i, g := range tried {
+		idx[g] = float64(i)
+	}
+	var trend [3][2]float64 // per axis: value at index 0, change per group
+	for k := range 3 {
+		var sw, sx, sy, sxx, sxy float64
+		for _, g := range need {
+			sg := g.along.AlongSigma[k]
+			if !(sg > 0) {
+				continue
+			}
+			w := 1 / (sg * sg)
+			x, y := idx[g], g.along.Along[k]
+			sw += w
+			sx += w * x
+			sy += w * y
+			sxx += w * x * x
+			sxy += w * x * y
+		}
+		if !(sw > 0) {
+			return 0
+		}
+		det := sw*sxx - sx*sx
+		if det > 1e-12*sw*sxx {
+			b := (sw*sxy - sx*sy) / det
+			trend[k] = [2]float64{(sy - b*sx) / sw, b}
+		} else {
+			trend[k] = [2]float64{sy / sw, 0}
+		}
+	}
+	agree := 0
+	for _, g := range tried {
+		x := idx[g]
+		var size float64
+		var at [3]float64
+		for k := range 3 {
+			at[k] = trend[k][0] + trend[k][1]*x
+			size += at[k] * at[k]
+		}
+		size = math.Sqrt(size)
+		ok := true
+		for k := range 3 {
+			if math.Abs(g.along.Along[k]-at[k]) > alongAgreeK*g.along.AlongSigma[k]+alongAgreeRel*size {
+				ok = false
+			}
+		}
+		if ok {
+			agree++
+		}
+	}
+	return agree
 }
 
 // alongWarning names the groups whose fits took a background changing along

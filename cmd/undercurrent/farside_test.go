@@ -5,6 +5,8 @@ import (
 	"math"
 	"strings"
 	"testing"
+
+	"undercurrent/inverse"
 )
 
 // railScenario is a straight 1.5 A main 1.3 m down that loses 0.1 A at
@@ -128,6 +130,56 @@ func TestLocateForcedPhantomNotTracked(t *testing.T) {
 		}
 		if resolved == 0 {
 			t.Errorf("conductor %d is followed through %d stations whose further lines all carry currents within 3 sigma of zero", c.Number, len(c.Route.Stations))
+		}
+	}
+}
+
+// alongGroups makes n groups whose along refits (invented fixtures) have the
+// terms slope(i) ± 0.02 nT/m on the up axis, needed where need(i).
+func alongGroups(n int, slope func(int) float64, need func(int) bool) []*group {
+	gs := make([]*group, n)
+	for i := range gs {
+		uni := &inverse.Result{Sources: []inverse.SourceEstimate{{Current: 1}}}
+		along := &inverse.Result{Sources: []inverse.SourceEstimate{{Current: 1.1}},
+			Along: []float64{0, 0, slope(i)}, AlongSigma: []float64{0.02, 0.02, 0.02}}
+		gs[i] = &group{key: fmt.Sprintf("T%02d", i+1), res: uni, along: along, alongNeed: need(i)}
+	}
+	return gs
+}
+
+// TestDecideAlongRouteWide: the along refit is taken for every group or for
+// none. A far line's terms agree on every traverse (or follow a smooth trend
+// along the route: a line converging on it); a misfit near a cable's end or a
+// tee is local to a few traverses, or gives terms that disagree, and then no
+// group takes it (with a choice per group, as the branch first had it, 12
+// tests of this package failed: TestEndPastTraverseNoFalseFall,
+// TestCartSensorsNotTraverses among them).
+func TestDecideAlongRouteWide(t *testing.T) {
+	all := func(int) bool { return true }
+	cases := []struct {
+		name  string
+		n     int
+		slope func(int) float64
+		need  func(int) bool
+		take  bool
+	}{
+		{"far line, same slope", 21, func(int) float64 { return 1.9 }, all, true},
+		{"far line converging", 21, func(i int) float64 { return 1 + 0.1*float64(i) }, all, true},
+		{"end: 3 of 21 traverses", 21, func(i int) float64 { return 2 * float64(max(0, i-17)) }, func(i int) bool { return i > 17 }, false},
+		{"slopes disagree", 21, func(i int) float64 { return float64(i%2)*4 - 2 }, all, false},
+		{"too few groups", 3, func(int) float64 { return 1.9 }, all, false},
+	}
+	for _, c := range cases {
+		gs := alongGroups(c.n, c.slope, c.need)
+		took := decideAlong(gs)
+		if took != c.take {
+			t.Errorf("%s: took %v, want %v", c.name, took, c.take)
+		}
+		for _, g := range gs {
+			if (g.bg == inverse.BackgroundAlong) != c.take || (g.res.Sources[0].Current == 1.1) != c.take || g.along != nil {
+				t.Errorf("%s: %s took bg %v (current %g), want all or none", c.name, g.key, g.bg, g.res.Sources[0].Current)
+				break
+			}
 		}
 	}
 }

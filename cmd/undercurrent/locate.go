@@ -873,12 +873,17 @@ type group struct {
 	err     error           // fit failure
 	// bg is the background the fit took: uniform, or with a term along the
 	// traverse where a far source to the side needed it (farside.go).
-	bg     inverse.BackgroundModel
-	travel []float64       // AC: distance walked during each window, m
-	half   [][3]float64    // AC: each window's half-travel (calibrate.Window.Travel), m
-	times  []float64       // AC: each window's centre time, s
-	ramp   *groupRamp      // AC: the phase ramp fitted (phaseramp.go); nil for none
-	res0   *inverse.Result // AC: with a ramp, the fit without one
+	bg inverse.BackgroundModel
+	// along is the group's fit with that background (chooseAlong), until
+	// decideAlong takes it for the route or drops it; alongNeed is set where
+	// the group's readings alone need it.
+	along     *inverse.Result
+	alongNeed bool
+	travel    []float64       // AC: distance walked during each window, m
+	half      [][3]float64    // AC: each window's half-travel (calibrate.Window.Travel), m
+	times     []float64       // AC: each window's centre time, s
+	ramp      *groupRamp      // AC: the phase ramp fitted (phaseramp.go); nil for none
+	res0      *inverse.Result // AC: with a ramp, the fit without one
 	// chirp is (AC) the drift of the field's frequency, Hz/s, followed
 	// within the group about its middle (followDrift); 0 for none.
 	chirp   float64
@@ -2791,7 +2796,7 @@ func fitGroups(ctx context.Context, o *locateOptions, sv *survey, progress io.Wr
 			for g := range jobs {
 				noise := sv.groupNoise(g, o.noise)
 				g.res, g.err = inverse.FitLines(g.problem(sv.ac, noise), set)
-				if !sv.ac {
+				if !sv.ac && !o.windowed() {
 					chooseAlong(g, set, noise)
 				}
 				if sv.ac && !o.coil.on() {
@@ -2821,6 +2826,7 @@ feed:
 		bar.Finish()
 	}
 	if err == nil {
+		decideAlong(sv.groups)
 		guardTimeRamps(sv, set, o.noise)
 		dropMisfitRamps(sv.groups)
 		dropLoneRamps(sv.groups)
