@@ -109,6 +109,10 @@ type Fit struct {
 	// the refitted conductors and the object).
 	lineObject *route.Object
 	objectLine int
+	// weakTested is the Result whose weak further lines checkLoneDipoles
+	// tested for a magnetised object in their place (lonedipole.go); a
+	// line it kept is then not one (addLoneCover).
+	weakTested *inverse.Result
 	// partner is the index into Result.Opposed of the strongest line's
 	// partner core when partnerChosen (choosePartners), -1 for none;
 	// partnerOdd, when not empty, says that it lies at a spacing unlike
@@ -454,6 +458,17 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 				return nil, err
 			}
 		}
+		// A weak further line off the conductor that no track follows
+		// may be a magnetised object's field (lonedipole.go): test it,
+		// and follow the conductors again when an object is kept.
+		if checkLoneDipoles(fits, r, tracks) {
+			if r, err = analyse(); err != nil {
+				return nil, err
+			}
+			if tracks, err = buildTracks(fits, r, rs, bs.TrackMinStations, pairRoute, ac); err != nil {
+				return nil, err
+			}
+		}
 		// A station whose line the fit split in two, where the sum
 		// fits its neighbours better than the stronger share, takes the
 		// sum (sameway.go): analyse and follow the conductors again.
@@ -484,14 +499,26 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 		d.DepthReference.PerLog = true
 	}
 	d.Warnings = append(d.Warnings, levelWarn...)
+	// No heights logged: the ground under each traverse taken as level
+	// (groundslope.go).
+	flat := heightsUnlogged(fits)
+	if flat && (rs.SensorHeight > 0 || d.DepthReference.Kind == DepthBelowGround) {
+		d.Notes = append(d.Notes, levelGroundNote(rs.SensorHeight, d.DepthReference.Kind == DepthBelowGround))
+	}
 	shared := sharedMisfit(fits, &bs, rs)
+	if shared != "" && flat && bs.KeptRails == "" {
+		shared += groundMisfitCause
+	}
 	if shared != "" {
 		d.Warnings = append([]string{shared}, d.Warnings...)
 	}
 	if w := serialWarning(fits); w != "" {
 		d.Warnings = append(d.Warnings, w)
 	}
-	markLoneMisfits(d.Groups, fits, &bs, rs)
+	markLoneMisfits(d.Groups, fits, &bs, rs, flat)
+	if w := climbUnlogged(r, flat); w != "" {
+		d.Warnings = append(d.Warnings, w)
+	}
 	d.PositionSigma = positionSigma(fits)
 	d.UncertaintyNote = UncertaintyNoteFor(d.PositionSigma)
 	aloneFindings(fits, r)
@@ -833,7 +860,7 @@ func measuredMisfits(fits []Fit, bs *BuildSettings, rs *route.Settings) (n int, 
 // when every traverse shares the misfit (an overhead line above a buried
 // cable: 42-50 times the noise on all five traverses, the current 13
 // sigma off, "5 sound"; found in review).
-func markLoneMisfits(groups []Group, fits []Fit, bs *BuildSettings, rs *route.Settings) {
+func markLoneMisfits(groups []Group, fits []Fit, bs *BuildSettings, rs *route.Settings, flat bool) {
 	if bs.Noise > 0 {
 		return
 	}
@@ -857,6 +884,11 @@ func markLoneMisfits(groups []Group, fits []Fit, bs *BuildSettings, rs *route.Se
 				why += fmt.Sprintf("; the positions scatter from reading to reading by %.2g m, which alone makes about %.3g nT of it: give their scatter with --position-sigma PLAN,HEIGHT (m) to weigh each reading by it, or smooth the track or use corrected positions", m.posScatter, m.posMisfit)
 			case m.frac < farAnyShare:
 				why += "; " + smallShareCauses
+			}
+			if !m.jitter && flat {
+				// No heights on this traverse: the ground's shape
+				// across it is a cause too (groundslope.go).
+				why += groundLoneCause
 			}
 			if g.Problem != "" {
 				g.Problem += "; "

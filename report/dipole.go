@@ -406,6 +406,14 @@ func neighbourPlaced(r *route.Route, key string, skip map[string]bool) (near []*
 // objects' tails (objectTails).
 func checkDipoles(fits []Fit, r *route.Route, progress ProgressFunc) bool {
 	cand := dipoleCandidates(r)
+	return checkDipolesOf(fits, r, progress, cand, cand, dipoleBIC, searchDipole)
+}
+
+// checkDipolesOf is checkDipoles searching the groups of cand by searchFn, with the
+// stations of skip left out as neighbours (agrees), and accepting an
+// object whose gain in the criterion is over minGain (dipoleBIC for the
+// route's anomalies; see checkLoneDipoles for a weak further line).
+func checkDipolesOf(fits []Fit, r *route.Route, progress ProgressFunc, cand, skip map[string]bool, minGain float64, searchFn func(*Fit) *dipoleSearch) bool {
 	// The searches are independent: run them a few at a time.
 	found := make([]*dipoleSearch, len(fits))
 	var search []int
@@ -425,7 +433,7 @@ func checkDipoles(fits []Fit, r *route.Route, progress ProgressFunc) bool {
 		sem <- struct{}{}
 		go func() {
 			defer func() { <-sem; done(); wg.Done() }()
-			ds := searchDipole(f)
+			ds := searchFn(f)
 			keepSearch(f, ds)
 			if ds != nil && !(ds.current > currentK(f.Problem.Phasors != nil)*ds.currentSigma) {
 				// With the object the conductor carries no current:
@@ -444,7 +452,8 @@ func checkDipoles(fits []Fit, r *route.Route, progress ProgressFunc) bool {
 	for i := range fits {
 		f := &fits[i]
 		ds := found[i]
-		if ds == nil || ds.gain <= dipoleBIC || ds.atTop || !ds.credible(f.Problem) {
+		if ds == nil || ds.gain <= minGain || ds.atTop || !ds.credible(f.Problem) ||
+			ds.alone && ds.gain <= dipoleBIC {
 			continue
 		}
 		if !ds.alone {
@@ -452,7 +461,7 @@ func checkDipoles(fits []Fit, r *route.Route, progress ProgressFunc) bool {
 				continue
 			}
 			tail := func(st *route.Station) (float64, float64, bool) { return withoutObject(fits, st, ds) }
-			if !agrees(r, f.Key, cand, ds.current, ds.currentSigma, tail) {
+			if !agrees(r, f.Key, skip, ds.current, ds.currentSigma, tail) {
 				continue
 			}
 			if ds.obj.Distance <= dipoleOffLine*ds.obj.Depth {

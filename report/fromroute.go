@@ -49,10 +49,10 @@ func (d *Document) SetRoute(r *route.Route) {
 			s := &g.Sources[0]
 			s.DipSigma, s.DepthSigma, s.CurrentSigma = bd.DipSigma, bd.DepthSigma, bd.CurrentSigma
 			if bd.Kinked {
-				s.Notes = append(s.Notes, fmt.Sprintf("dip and depth uncertainties widened for a bend nearby: the slope of the stations' depths changes from %.3g deg before this one to %.3g deg after it, and the fitted dip, %s deg, may lie anywhere between (the fit's own sigmas: dip %s deg, depth %s m)",
+				s.Notes = append(s.Notes, fmt.Sprintf("dip and depth uncertainties widened for a bend nearby: the dip of the conductor's elevations (not its cover) at the stations changes from %.3g deg before this one to %.3g deg after it, and the fitted dip, %s deg, may lie anywhere between (the fit's own sigmas: dip %s deg, depth %s m)",
 					bd.SlopeBefore, bd.SlopeAfter, PlusMinus(bd.FitDip, bd.FitDipSigma), route.SigmaText(bd.FitDipSigma), route.SigmaText(bd.FitDepthSigma)))
 			} else {
-				s.Notes = append(s.Notes, fmt.Sprintf("dip, depth and current uncertainties widened for a bend nearby: the fitted dip %s deg departs from the slope of the neighbouring stations' depths, %s deg (the fit's own sigmas: dip %s deg, depth %s m, current %s A)",
+				s.Notes = append(s.Notes, fmt.Sprintf("dip, depth and current uncertainties widened for a bend nearby: the fitted dip %s deg departs from the dip of the conductor's elevations (not its cover) at the neighbouring stations, %s deg (the fit's own sigmas: dip %s deg, depth %s m, current %s A)",
 					PlusMinus(bd.FitDip, bd.FitDipSigma), PlusMinus(bd.RouteDip, bd.RouteDipSigma), route.SigmaText(bd.FitDipSigma), route.SigmaText(bd.FitDepthSigma), route.SigmaText(bd.FitCurrentSigma)))
 			}
 		}

@@ -1354,7 +1354,7 @@ func ChainageZero(d *Document) string {
 	}
 	return fmt.Sprintf("Chainage 0 is %s, at %s; "+
 		"chainage increases from there towards %s, setting off %.0f° from north (%s), "+
-		"and is measured along the fitted route, not from the survey's pegs or marks.",
+		"and is measured along the fitted route in plan (horizontal distance, shorter than a tape along sloping ground), not from the survey's pegs or marks.",
 		cross, where, last.Key, bearing, compassPoint(bearing))
 }
 

@@ -213,6 +213,16 @@ func (d *Document) addLoneCover(fits []Fit, r *route.Route, rs *route.Settings, 
 		if !ok {
 			continue
 		}
+		if f.Severity == route.SeverityWarning && !slices.ContainsFunc(members, func(b int) bool {
+			return !weakUntested(&fits[lones[b].src.fit], lones[b].src.source)
+		}) {
+			// Weak lines beside the conductor never tested for a
+			// magnetised object in their place (lonedipole.go): a
+			// caution at most.
+			f.Severity = route.SeverityCaution
+			f.Message = strings.Replace(f.Message, " is less than the ", " may be less than the ", 1) +
+				"; the line is weak beside the conductor and was not tested against a magnetised object in its place, which its field may be"
+		}
 		nf := findingOf(f)
 		nf.Lone = true
 		for _, b := range members {
@@ -418,4 +428,22 @@ func (f *Fit) validCrossPairs() []inverse.PairEstimate {
 		out = append(out, c.q)
 	}
 	return out
+}
+
+// weakUntested reports whether source j of f's fit is a further line under
+// weakShare of the strongest that checkLoneDipoles did not test for a
+// magnetised object in its place (loneWeak, Fit.weakTested).
+func weakUntested(f *Fit, j int) bool {
+	res := f.Result
+	if res == nil || j <= 0 || j >= len(res.Sources) {
+		return false
+	}
+	strongest := 0.0
+	for k := range res.Sources {
+		strongest = math.Max(strongest, math.Abs(res.Sources[k].Current))
+	}
+	if !(math.Abs(res.Sources[j].Current) < weakShare*strongest) {
+		return false
+	}
+	return f.weakTested != res || !loneWeak(res, j)
 }

@@ -45,7 +45,7 @@ func TestOverheadLineMisfitNotSound(t *testing.T) {
 	if !strings.Contains(w, "6 of 6 groups' fits miss the readings") || !strings.Contains(w, "a conductor above the sensors") {
 		t.Errorf("overhead line left out of every fit: warning %q, want one naming a conductor above the sensors", w)
 	}
-	markLoneMisfits(groups, fits, bs, rs)
+	markLoneMisfits(groups, fits, bs, rs, false)
 	for _, g := range groups {
 		if g.Problem == "" {
 			t.Errorf("%s: sound, misfit %.3g nT against %.3g nT noise", g.Key, fits[0].Result.RMS, noise)
@@ -64,7 +64,7 @@ func TestOverheadLineMisfitNotSound(t *testing.T) {
 	if w := sharedMisfit(fits, bs, rs); w != "" {
 		t.Errorf("cable alone: warning %q", w)
 	}
-	markLoneMisfits(groups, fits, bs, rs)
+	markLoneMisfits(groups, fits, bs, rs, false)
 	for _, g := range groups {
 		if g.Problem != "" {
 			t.Errorf("cable alone, %s: %s", g.Key, g.Problem)

@@ -281,11 +281,11 @@ func pairText(a, b string) string { return "from " + a + " to " + b }
 // named by between.
 func bendClause(bd *BendDoubt, between string) string {
 	if bd.Kinked {
-		return fmt.Sprintf("the conductor bends near here: the depths slope at %.3g deg from %s to here and at %.3g deg from here to %s, so the straight line fitted here (dip %s deg) is tilted by the conductor's turn nearby; its dip and depth are less certain than the fit alone says (sigmas widened to dip ± %s deg, depth ± %s m)",
+		return fmt.Sprintf("the conductor bends near here: by its elevations (not its cover) it dips at %.3g deg from %s to here and at %.3g deg from here to %s (dips positive where it deepens along the chainage), so the straight line fitted here (dip %s deg) is tilted by the conductor's turn nearby; its dip and depth are less certain than the fit alone says (sigmas widened to dip ± %s deg, depth ± %s m)",
 			bd.SlopeBefore, bd.before, bd.SlopeAfter, bd.after, PlusMinus(bd.FitDip, bd.FitDipSigma),
 			SigmaText(bd.DipSigma), SigmaText(bd.DepthSigma))
 	}
-	return fmt.Sprintf("the conductor bends near here: the fit gives a dip of %s deg, but the depths of the stations %s slope at %s deg, so the straight line fitted here is tilted by the conductor's turn nearby; its dip, depth and current are less certain than the fit alone says (sigmas widened to dip ± %s deg, depth ± %s m, current ± %s A)",
+	return fmt.Sprintf("the conductor bends near here: the fit gives a dip of %s deg, but by its elevations (not its cover) at the stations %s it dips at %s deg (dips positive where it deepens along the chainage), so the straight line fitted here is tilted by the conductor's turn nearby; its dip, depth and current are less certain than the fit alone says (sigmas widened to dip ± %s deg, depth ± %s m, current ± %s A)",
 		PlusMinus(bd.FitDip, bd.FitDipSigma), between, PlusMinus(bd.RouteDip, bd.RouteDipSigma),
 		SigmaText(bd.DipSigma), SigmaText(bd.DepthSigma), SigmaText(bd.CurrentSigma))
 }
