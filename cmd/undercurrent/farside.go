@@ -7,6 +7,7 @@ import (
 	"strings"
 
 	"undercurrent/inverse"
+	"undercurrent/report"
 )
 
 // alongGain is the fall in chi-square (in the readings' own noise, measured from
@@ -89,6 +90,22 @@ func chooseAlong(g *group, set *inverse.Settings, noise float64) {
 // that agree with the route's trend in them (alongAgreeing). It returns
 // whether it took them.
 func decideAlong(groups []*group) bool {
+	take := wantAlong(groups)
+	for _, g := range groups {
+		if g.along == nil {
+			continue
+		}
+		if take {
+			g.res, g.bg = g.along, inverse.BackgroundAlong
+		}
+		g.along = nil
+	}
+	return take
+}
+
+// wantAlong is decideAlong's choice without taking it: whether the groups'
+// along refits would be taken.
+func wantAlong(groups []*group) bool {
 	var tried, need []*group
 	for _, g := range groups {
 		if g.along == nil {
@@ -99,15 +116,62 @@ func decideAlong(groups []*group) bool {
 			need = append(need, g)
 		}
 	}
-	take := len(need) >= alongMin && float64(len(need)) >= alongShare*float64(len(tried)) &&
+	return len(need) >= alongMin && float64(len(need)) >= alongShare*float64(len(tried)) &&
 		float64(alongAgreeing(tried, need)) >= alongShare*float64(len(tried))
-	for _, g := range tried {
-		if take {
-			g.res, g.bg = g.along, inverse.BackgroundAlong
-		}
+}
+
+// dropAlong drops the groups' along refits: the uniform-background fits stand.
+func dropAlong(groups []*group) {
+	for _, g := range groups {
 		g.along = nil
 	}
-	return take
+}
+
+// lineAboveFirst runs the line-above search (report.FindLineAbove) on the
+// uniform-background fits when the route would take the along refits
+// (wantAlong), and reports whether it takes a line above; the along term
+// then stays off. An overhead line is a far line reaching every traverse
+// alike, so the along term takes up much of its field (up to 77 nT per metre
+// in review: a 50 A line 11.7 m over the sensors); the fits' misfit then
+// falls below the level that starts the search, and the line was never
+// found nor reported apart. Where the search takes none, its reason is kept
+// for the warnings (sv.aboveWhy) and the along term is weighed as before.
+// The search runs again in report.Build on the fits reported, so a survey
+// with a line above pays for it twice.
+func lineAboveFirst(o *locateOptions, sv *survey) bool {
+	sv.aboveWhy = ""
+	if sv.ac || !wantAlong(sv.groups) {
+		return false
+	}
+	fits := make([]report.Fit, 0, len(sv.groups))
+	for _, g := range sv.groups {
+		f := report.Fit{Key: g.key, Problem: g.problem(false, sv.groupNoise(g, o.noise)), Result: g.res, Err: g.err, Settings: o.fitSettings()}
+		f.Settings.Background = g.bg
+		f.MeasuredNoise = g.measuredNoise(false)
+		fits = append(fits, f)
+	}
+	la, why := report.FindLineAbove(fits, &report.BuildSettings{
+		SensorHeight:  sv.datum,
+		Noise:         sv.fitNoise(o.noise),
+		MeasuredNoise: medianOf(sv.windowSigma) + dcMeasuredNoise(sv),
+		LineAbove:     true,
+	})
+	if la != nil {
+		return true
+	}
+	sv.aboveWhy = why
+	return false
+}
+
+// saysLineAboveWhy reports whether warnings already say why a line above
+// was not taken.
+func saysLineAboveWhy(warnings []string) bool {
+	for _, w := range warnings {
+		if strings.Contains(w, "(--line-above) was not taken") {
+			return true
+		}
+	}
+	return false
 }
 
 // alongAgreeing counts the groups of tried whose along terms lie within

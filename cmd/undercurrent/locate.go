@@ -1051,6 +1051,10 @@ type survey struct {
 	// alongNotes say the logs were cut into along-route windows
 	// (alongwindows.go).
 	alongNotes []string
+	// aboveWhy is why the line-above search on the uniform-background
+	// fits took no line above (lineAboveFirst), said with --line-above
+	// when the search on the fits reported gives no reason of its own.
+	aboveWhy string
 	// leaky holds, for the AC logs in which a fitted mains line too strong
 	// for its distance leaks into the signal, why their groups are not
 	// sound (demodPlan.strongLine).
@@ -2826,7 +2830,15 @@ feed:
 		bar.Finish()
 	}
 	if err == nil {
-		decideAlong(sv.groups)
+		// A line above the sensors is a far line that reaches every
+		// traverse alike too: the line-above search runs first, on the
+		// uniform-background fits, and the along term is weighed only
+		// where it finds nothing (farside.go).
+		if o.lineAbove && lineAboveFirst(o, sv) {
+			dropAlong(sv.groups)
+		} else {
+			decideAlong(sv.groups)
+		}
 		guardTimeRamps(sv, set, o.noise)
 		dropMisfitRamps(sv.groups)
 		dropLoneRamps(sv.groups)
@@ -2998,6 +3010,9 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 	})
 	if err != nil {
 		return nil, err
+	}
+	if o.lineAbove && o.lineAboveSet && sv.aboveWhy != "" && len(doc.LinesAbove) == 0 && !saysLineAboveWhy(doc.Warnings) {
+		doc.Warnings = append(doc.Warnings, sv.aboveWhy)
 	}
 	// The columns read as position sigmas (possigcols.go).
 	nameSigmaColumns(doc, sv)
