@@ -1,5 +1,7 @@
 package inverse
 
+import "math"
+
 // Background is the field of distant sources over the survey: a uniform field, optionally
 // with a constant gradient about Origin. Distant sources make the region source free, so
 // the gradient tensor G_ij = dB_i/dx_j is symmetric (curl free) and traceless (divergence
@@ -10,16 +12,25 @@ package inverse
 //	strengths: B0e, B0n, B0u, Gee, Gen, Geu, Gnn, Gnu   (T and T/m);  Guu = -(Gee + Gnn)
 //
 // A single traverse cannot resolve the gradient components across it; enable Gradient only
-// for areal surveys.
+// for areal surveys. Along, when not zero (and Gradient false), adds instead the three
+// terms a single traverse resolves, the change of each axis per metre along the unit
+// horizontal vector Along (BackgroundAlong):
+//
+//	B(r) = B0 + A ((r - Origin) . Along)
+//	strengths: B0e, B0n, B0u, Ae, An, Au
 type Background struct {
 	Origin   [3]float64
 	Gradient bool
+	Along    [3]float64
 }
 
-// NumStrengths returns 3, or 8 with Gradient.
+// NumStrengths returns 3, 8 with Gradient, or 6 with Along.
 func (g Background) NumStrengths() int {
 	if g.Gradient {
 		return 8
+	}
+	if g.Along != ([3]float64{}) {
+		return 6
 	}
 	return 3
 }
@@ -34,6 +45,12 @@ func (g Background) Basis(r [3]float64, dst [][3]float64) {
 	dst[1] = [3]float64{0, 1, 0}
 	dst[2] = [3]float64{0, 0, 1}
 	if !g.Gradient {
+		if g.Along != ([3]float64{}) {
+			u := dot(sub(r, g.Origin), g.Along)
+			dst[3] = [3]float64{u, 0, 0}
+			dst[4] = [3]float64{0, u, 0}
+			dst[5] = [3]float64{0, 0, u}
+		}
 		return
 	}
 	d := sub(r, g.Origin)
@@ -57,4 +74,23 @@ func (g Background) Field(r [3]float64, strengths []float64) [3]float64 {
 		b = add(b, scale(dst[k], c))
 	}
 	return b
+}
+
+// alongAxis returns the principal horizontal direction of pts about org (the unit
+// vector BackgroundAlong's terms run along), east-pointing or, square to east,
+// north-pointing, so that the sign of the terms does not depend on the readings' order.
+func alongAxis(pts [][3]float64, org [3]float64) [3]float64 {
+	var cee, cen, cnn float64
+	for _, r := range pts {
+		de, dn := r[0]-org[0], r[1]-org[1]
+		cee += de * de
+		cen += de * dn
+		cnn += dn * dn
+	}
+	_, _, ang := PlanPrincipal(cee, cnn, cen)
+	t := [3]float64{math.Cos(ang), math.Sin(ang), 0}
+	if t[0] < -1e-12 || (math.Abs(t[0]) <= 1e-12 && t[1] < 0) {
+		t[0], t[1] = -t[0], -t[1]
+	}
+	return t
 }

@@ -44,7 +44,7 @@ type scanNode struct {
 // local minima (across and in depth), best first, at most keep of them. ok is false
 // for a gradient background (not linear in this way) or when no node is formed.
 func (sv *survey) crossingScan(az, minDepth float64, bg BackgroundModel, at [2]float64, keep int) (nodes []scanNode, atRSS float64, ok bool) {
-	if bg == BackgroundGradient {
+	if bg == BackgroundGradient || bg == BackgroundAlong {
 		return nil, 0, false
 	}
 	sub := sv.screening()
@@ -201,7 +201,7 @@ const scanBelow = 2500
 // backgroundRSS returns the sum of squares of the readings about the background alone
 // (a uniform field per axis, or none), or ok false for a gradient background.
 func (sv *survey) backgroundRSS(bg BackgroundModel) (rss float64, ok bool) {
-	if bg == BackgroundGradient {
+	if bg == BackgroundGradient || bg == BackgroundAlong {
 		return 0, false
 	}
 	n, nr := len(sv.pts), sv.nrhs

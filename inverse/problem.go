@@ -202,6 +202,16 @@ const (
 	// BackgroundGradient fits a constant field and a source-free linear gradient about
 	// the centroid of the readings (see Background); needs an areal survey.
 	BackgroundGradient
+	// BackgroundAlong fits a constant field and, per axis, a term linear in the
+	// distance along the readings' principal horizontal direction from their
+	// centroid (six columns): the field of a distant source to the side, a
+	// traction return or another cable tens of metres away, whose 1/r falloff a
+	// uniform field cannot hold over a traverse. Of the five gradient terms only
+	// these three, dB/du for u along the traverse, are seen by a single traverse
+	// (the other two multiply the distance across it, which is about zero there),
+	// so this is the identifiable part of BackgroundGradient on one traverse.
+	// Result.Along holds the three terms (DC only).
+	BackgroundAlong
 )
 
 func (b BackgroundModel) columns() int {
@@ -210,6 +220,8 @@ func (b BackgroundModel) columns() int {
 		return 0
 	case BackgroundGradient:
 		return 8
+	case BackgroundAlong:
+		return 6
 	}
 	return 3
 }
@@ -352,9 +364,9 @@ func (s *Settings) check() error {
 		return fmt.Errorf("inverse: unknown Settings.Criterion %d (BIC or AIC)", int(s.Criterion))
 	}
 	switch s.Background {
-	case BackgroundUniform, BackgroundNone, BackgroundGradient:
+	case BackgroundUniform, BackgroundNone, BackgroundGradient, BackgroundAlong:
 	default:
-		return fmt.Errorf("inverse: unknown Settings.Background %d (BackgroundUniform, BackgroundNone or BackgroundGradient)", int(s.Background))
+		return fmt.Errorf("inverse: unknown Settings.Background %d (BackgroundUniform, BackgroundNone, BackgroundGradient or BackgroundAlong)", int(s.Background))
 	}
 	if s.MaxCount < 0 || s.MaxCount > 8 {
 		return fmt.Errorf("inverse: Settings.MaxCount = %d, want 0 (meaning 4) to 8", s.MaxCount)
@@ -506,6 +518,12 @@ type Result struct {
 	// Gradient holds the gradient terms in nT/m (Gee, Gen, Geu, Gnn, Gnu) when
 	// Settings.Background is BackgroundGradient (DC only).
 	Gradient []float64
+	// Along and AlongSigma hold the terms of BackgroundAlong in nT/m (east,
+	// north, up: each axis's change per metre along AlongAxis) with their
+	// one-sigma uncertainties, when Settings.Background is BackgroundAlong (DC
+	// only); AlongAxis is that unit horizontal direction (east, north, up).
+	Along, AlongSigma []float64
+	AlongAxis         [3]float64
 	// Strengths and StrengthSigmas are the fitted linear strengths of FitStrengths in
 	// the sources' units (A, A m^2), in the order of the sources; StrengthPhasors for
 	// AC. Nil for FitLines.

@@ -1031,7 +1031,11 @@ func paramNames(sp *separable) []string {
 			}
 		}
 		for j := range nb {
-			names = append(names, bgn[j]+[...]string{"", ".re", ".im"}[first/4-1])
+			b := bgn[j]
+			if sp.bg == BackgroundAlong {
+				b = alongNames[j]
+			}
+			names = append(names, b+[...]string{"", ".re", ".im"}[first/4-1])
 		}
 	}
 	return names
@@ -1185,6 +1189,14 @@ func (f *fitter) report(c *candidate, scores []ModelScore) (*Result, error) {
 		}
 		if nb == 8 && nr == 1 {
 			r.Gradient = append([]float64(nil), su.v[np+bc+3:np+bc+8]...)
+		}
+		if nb == 6 && nr == 1 {
+			r.Along = append([]float64(nil), su.v[np+bc+3:np+bc+6]...)
+			r.AlongSigma = make([]float64, 3)
+			for j := range 3 {
+				r.AlongSigma[j] = math.Sqrt(su.cov.At(np+bc+3+j, np+bc+3+j))
+			}
+			r.AlongAxis = alongAxis(sp.pts, sp.org)
 		}
 	}
 	// Residuals and predictions, unweighted.

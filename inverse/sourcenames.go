@@ -11,6 +11,17 @@ import (
 // north and up components, then with the gradient its five independent terms.
 var backgroundNames = []string{"bg.e", "bg.n", "bg.u", "grad.ee", "grad.en", "grad.eu", "grad.nn", "grad.nu"}
 
+// alongNames name BackgroundAlong's three terms after the uniform field's.
+var alongNames = []string{"bg.e", "bg.n", "bg.u", "along.e", "along.n", "along.u"}
+
+// backgroundName names column k of the background bg.
+func backgroundName(bg BackgroundModel, k int) string {
+	if bg == BackgroundAlong && k < len(alongNames) {
+		return alongNames[k]
+	}
+	return backgroundNames[k]
+}
+
 // sourceLabel names source i of the caller's list (list: the argument's name, as
 // "sources") with its kind: "sources[1] (Segment)", "sources[0] (*Line)"; a source
 // given alone (list "") is "the source (Dipole)".
@@ -41,7 +52,13 @@ func strengthName(list string, sources []Source, k int) string {
 		case Dipole, *Dipole:
 			return fmt.Sprintf("the %s moment of %s", []string{"east", "north", "up"}[k], what)
 		case Background, *Background:
-			return fmt.Sprintf("the term %s of %s", backgroundNames[k], what)
+			name := backgroundNames[k]
+			if b, ok := src.(Background); ok && !b.Gradient && b.Along != ([3]float64{}) {
+				name = alongNames[k]
+			} else if b, ok := src.(*Background); ok && !b.Gradient && b.Along != ([3]float64{}) {
+				name = alongNames[k]
+			}
+			return fmt.Sprintf("the term %s of %s", name, what)
 		}
 		if n == 1 {
 			return "the strength of " + what

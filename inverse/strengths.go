@@ -108,7 +108,7 @@ func FitStrengths(p *Problem, sources []Source, set *Settings) (*Result, error) 
 		r.ParamNames = append(r.ParamNames, fmt.Sprintf("strength%d", j+1))
 	}
 	for j := range nb {
-		r.ParamNames = append(r.ParamNames, backgroundNames[j])
+		r.ParamNames = append(r.ParamNames, backgroundName(s.Background, j))
 	}
 	for j := range min(nb, 3) {
 		if nr == 1 {
@@ -122,6 +122,11 @@ func FitStrengths(p *Problem, sources []Source, set *Settings) (*Result, error) 
 	}
 	if nb == 8 && nr == 1 {
 		r.Gradient = append([]float64(nil), coef[ns+3:ns+8]...)
+	}
+	if nb == 6 && nr == 1 {
+		r.Along = append([]float64(nil), coef[ns+3:ns+6]...)
+		r.AlongSigma = []float64{sig(ns + 3), sig(ns + 4), sig(ns + 5)}
+		r.AlongAxis = alongAxis(p.Points, sv.centroid)
 	}
 	r.DepthReference, r.ReferenceZ = "mean sensor height", sv.zmean
 	if s.ReferenceZ != nil {
@@ -368,6 +373,9 @@ func strengthsBasis(p *Problem, list string, sources []Source, s Settings, sv *s
 	}
 	basis := make([][3]float64, 8)
 	bgc := Background{Origin: sv.centroid, Gradient: s.Background == BackgroundGradient}
+	if s.Background == BackgroundAlong {
+		bgc.Along = alongAxis(p.Points, sv.centroid)
+	}
 	// The background is linear in position, so its value at a reading is its average
 	// along the reading's path.
 	for i, r := range p.Points {

@@ -371,6 +371,11 @@ func (sp *separable) fillRaw(phi []float64, rs, cs int, pos []int, pts [][3]floa
 		}
 	} else if nb > 0 && (pos == nil || nb > 3) {
 		bgc := Background{Origin: sp.org, Gradient: sp.bg == BackgroundGradient}
+		if sp.bg == BackgroundAlong {
+			// Formed here, not kept in the separable: the direction is only needed
+			// for this background, and a larger separable slowed every fit.
+			bgc.Along = alongAxis(sp.pts, sp.org)
+		}
 		c0 := sp.bgCol()
 		for i, r := range pts {
 			bgc.Basis(r, basis[:nb])

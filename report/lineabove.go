@@ -509,3 +509,13 @@ func keptPlan(before []inverse.SourceEstimate, a inverse.SourceEstimate) string 
 	}
 	return why
 }
+
+// FindLineAbove runs the line-above search of Build (BuildSettings.LineAbove,
+// refitLinesAbove) on a copy of fits, leaving fits and their results as they
+// were: the line above Build would take, or nil and why none was taken ("" when
+// the fits did not miss by enough to look). A caller that may still change the
+// fits' model (cmd's background changing along the traverse) asks first
+// whether a line above explains their misfit. DC only.
+func FindLineAbove(fits []Fit, bs *BuildSettings) (*LineAbove, string) {
+	return refitLinesAbove(append([]Fit(nil), fits...), bs)
+}

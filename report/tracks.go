@@ -471,7 +471,12 @@ func trackCandidates(fits []Fit, r *route.Route, pairRoute, ac bool, sensorHeigh
 			if s.Kind == KindDipole || j+1 == partner || inPair[j+1] {
 				continue
 			}
-			if !sound(&s) || lineAboveGround(res, j+1, sensorHeight) {
+			// A line whose current the readings do not set apart from zero
+			// (NoCurrent) is no conductor to follow: its position is not
+			// determined. Such phantoms of a forced --count (a line 130 m
+			// down at -1580 ± 7570 A beside a main with a traction return
+			// 40 m off) were linked into conductors 2 to 6, with bends.
+			if !sound(&s) || NoCurrent(&s, ac) || lineAboveGround(res, j+1, sensorHeight) {
 				continue
 			}
 			off, depth := crossBelow(p.Point, u, right, s, zs)

@@ -880,11 +880,19 @@ type group struct {
 	phasors [][3]complex128 // AC
 	res     *inverse.Result // fit
 	err     error           // fit failure
-	travel  []float64       // AC: distance walked during each window, m
-	half    [][3]float64    // AC: each window's half-travel (calibrate.Window.Travel), m
-	times   []float64       // AC: each window's centre time, s
-	ramp    *groupRamp      // AC: the phase ramp fitted (phaseramp.go); nil for none
-	res0    *inverse.Result // AC: with a ramp, the fit without one
+	// bg is the background the fit took: uniform, or with a term along the
+	// traverse where a far source to the side needed it (farside.go).
+	bg inverse.BackgroundModel
+	// along is the group's fit with that background (chooseAlong), until
+	// decideAlong takes it for the route or drops it; alongNeed is set where
+	// the group's readings alone need it.
+	along     *inverse.Result
+	alongNeed bool
+	travel    []float64       // AC: distance walked during each window, m
+	half      [][3]float64    // AC: each window's half-travel (calibrate.Window.Travel), m
+	times     []float64       // AC: each window's centre time, s
+	ramp      *groupRamp      // AC: the phase ramp fitted (phaseramp.go); nil for none
+	res0      *inverse.Result // AC: with a ramp, the fit without one
 	// chirp is (AC) the drift of the field's frequency, Hz/s, followed
 	// within the group about its middle (followDrift); 0 for none.
 	chirp   float64
@@ -1055,6 +1063,10 @@ type survey struct {
 	// alongNotes say the logs were cut into along-route windows
 	// (alongwindows.go).
 	alongNotes []string
+	// aboveWhy is why the line-above search on the uniform-background
+	// fits took no line above (lineAboveFirst), said with --line-above
+	// when the search on the fits reported gives no reason of its own.
+	aboveWhy string
 	// leaky holds, for the AC logs in which a fitted mains line too strong
 	// for its distance leaks into the signal, why their groups are not
 	// sound (demodPlan.strongLine).
@@ -2800,6 +2812,9 @@ func fitGroups(ctx context.Context, o *locateOptions, sv *survey, progress io.Wr
 			for g := range jobs {
 				noise := sv.groupNoise(g, o.noise)
 				g.res, g.err = inverse.FitLines(g.problem(sv.ac, noise), set)
+				if !sv.ac && !o.windowed() {
+					chooseAlong(g, set, noise)
+				}
 				if sv.ac && !o.coil.on() {
 					fitRamp(g, set, noise)
 				}
@@ -2827,6 +2842,15 @@ feed:
 		bar.Finish()
 	}
 	if err == nil {
+		// A line above the sensors is a far line that reaches every
+		// traverse alike too: the line-above search runs first, on the
+		// uniform-background fits, and the along term is weighed only
+		// where it finds nothing (farside.go).
+		if o.lineAbove && lineAboveFirst(o, sv) {
+			dropAlong(sv.groups)
+		} else {
+			decideAlong(sv.groups)
+		}
 		guardTimeRamps(sv, set, o.noise)
 		dropMisfitRamps(sv.groups)
 		dropLoneRamps(sv.groups)
@@ -2937,12 +2961,16 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 			head.Warnings = append(head.Warnings, l.source+": "+w)
 		}
 	}
+	if w := alongWarning(sv.groups); w != "" {
+		head.Warnings = append(head.Warnings, w)
+	}
 	if w := wrongFreqWarning(sv, o.freq); w != "" {
 		head.Warnings = append(head.Warnings, w)
 	}
 	fits := make([]report.Fit, len(sv.groups))
 	for i, g := range sv.groups {
 		fits[i] = report.Fit{Key: g.key, Problem: g.problem(sv.ac, sv.groupNoise(g, o.noise)), Result: g.res, Err: g.err, Settings: o.fitSettings()}
+		fits[i].Settings.Background = g.bg
 		if g.ramp != nil {
 			fits[i].PhaseRampHz, fits[i].PhaseRampSigmaHz = g.ramp.hz, g.ramp.sigma
 		}
@@ -2999,6 +3027,9 @@ func buildDocument(ctx context.Context, o *locateOptions, sv *survey) (*report.D
 	})
 	if err != nil {
 		return nil, err
+	}
+	if o.lineAbove && o.lineAboveSet && sv.aboveWhy != "" && len(doc.LinesAbove) == 0 && !saysLineAboveWhy(doc.Warnings) {
+		doc.Warnings = append(doc.Warnings, sv.aboveWhy)
 	}
 	// The columns read as position sigmas (possigcols.go).
 	nameSigmaColumns(doc, sv)
