@@ -113,6 +113,11 @@ type Fit struct {
 	// tested for a magnetised object in their place (lonedipole.go); a
 	// line it kept is then not one (addLoneCover).
 	weakTested *inverse.Result
+	// replaced are the indices into weakTested of the weak further lines
+	// whose place checkLoneDipoles gave to the magnetised object
+	// replacedBy; addLoneCover still checks their cover (lonedipole.go).
+	replaced   []int
+	replacedBy *route.Object
 	// partner is the index into Result.Opposed of the strongest line's
 	// partner core when partnerChosen (choosePartners), -1 for none;
 	// partnerOdd, when not empty, says that it lies at a spacing unlike

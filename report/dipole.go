@@ -477,6 +477,17 @@ func checkDipolesOf(fits []Fit, r *route.Route, progress ProgressFunc, cand, ski
 		}
 		acc = append(acc, accepted{fit: i, ds: ds})
 	}
+	// A weak further line an object takes the place of keeps its cover
+	// check (lonedipole.go, addLoneCover).
+	for _, a := range acc {
+		ds := a.ds
+		if ds.alone && ds.with != nil {
+			ds = ds.with
+		}
+		if len(ds.replaced) > 0 {
+			fits[a.fit].replaced, fits[a.fit].replacedBy = ds.replaced, a.ds.obj
+		}
+	}
 	// One object seen from two traverses is reported once (sameobject.go):
 	// the traverse that placed it less well keeps its conductors, refitted
 	// without the object's field.
@@ -968,6 +979,10 @@ type dipoleSearch struct {
 	// as the fit knows it, T: the Earth's (dipoleEarthMax) for DC, and
 	// the fitted conductors' field at the object (see credible).
 	inducing float64
+	// replaced, for a search in place of weak further lines (searchLone),
+	// are the indices into the searched Result of the lines the object
+	// takes the place of; nil for the other searches.
+	replaced []int
 }
 
 // Bounds on an object before it is reported.

@@ -3,6 +3,7 @@ package report
 import (
 	"math"
 	"path/filepath"
+	"strings"
 	"testing"
 
 	"undercurrent/inverse/simulate"
@@ -53,7 +54,8 @@ func TestCableJointsNamedAsObjects(t *testing.T) {
 	}
 	svcAz := math.Atan2(u[0], u[1]) * 180 / math.Pi
 
-	d := scenarioDoc(t, name, 1)
+	sc.Seed = 1
+	d := simulatedDocWith(t, sc, &BuildSettings{MinCover: 0.45})
 	named := map[int]bool{}
 	service := false
 	for _, g := range d.Groups {
@@ -79,8 +81,10 @@ func TestCableJointsNamedAsObjects(t *testing.T) {
 		t.Errorf("the 0.5 A service at azimuth %.0f is not reported as a line", svcAz)
 	}
 	for _, f := range d.Findings {
-		if f.Kind == "shallow-cover" && f.Severity == "warning" && fromService(f.Position) > 1 {
-			t.Errorf("shallow-cover warning for a line %.1f m from the only shallow service: %s", fromService(f.Position), f.Message)
+		t.Logf("%s %s: %s", f.Severity, f.Kind, f.Message)
+		if f.Kind == "shallow-cover" && f.Severity == "warning" && fromService(f.Position) > 1 &&
+			!(strings.Contains(f.Message, "magnetised object") && strings.Contains(f.Message, "treat as live")) {
+			t.Errorf("shallow-cover warning for a line %.1f m from the only shallow service that does not name the object reading: %s", fromService(f.Position), f.Message)
 		}
 	}
 }

@@ -85,6 +85,44 @@ func (d *Document) addLoneCover(fits []Fit, r *route.Route, rs *route.Settings, 
 			})
 		}
 	}
+	// The weak lines a magnetised object took the place of
+	// (checkLoneDipoles): their cover is still checked (below), as a
+	// short live conductor fits a point dipole as well as the object.
+	for k := range r.Stations {
+		p := &r.Stations[k]
+		if p.Index < 0 || p.Index >= len(fits) {
+			continue
+		}
+		f := &fits[p.Index]
+		if len(f.replaced) == 0 || f.weakTested == nil || f.replacedBy == nil {
+			continue
+		}
+		for _, j := range f.replaced {
+			if j < 0 || j >= len(f.weakTested.Sources) {
+				continue
+			}
+			s := f.weakTested.Sources[j]
+			if !sound(&s) || lineAboveGround(f.weakTested, j, rs.SensorHeight) {
+				continue
+			}
+			// The station as it stood with the line: its own check does
+			// not use a station given to an object.
+			pp := *p
+			pp.Dipole = false
+			l := route.Line{Point: s.Point, Dir: s.Dir, Current: s.Current, CurrentSigma: s.CurrentSigma, Depth: s.Depth, DepthSigma: s.DepthSigma, AzimuthSigma: s.AzimuthSigma}
+			lones = append(lones, loneLine{
+				station:     k,
+				src:         trackSource{fit: p.Index, source: -1, steep: true, linePoint: s.Point, lineDir: s.Dir, lineDepth: sensorsLevel(f) - s.Point[2], azSigma: s.AzimuthSigma},
+				listed:      s.Identifiable.Azimuth,
+				depthSigma:  s.DepthSigma,
+				offsetSigma: s.OffsetSigma,
+				line:        l,
+				mark:        route.LoneMark(&pp, l, rs),
+				placed:      &pp,
+				object:      f.replacedBy,
+			})
+		}
+	}
 	// markAt is what station s's fit shows of the lines of (indices into
 	// lones), judged in line with them by in (loneInLine to merge,
 	// loneNear to bracket): MarkShort, with the shallow lines in line
@@ -99,7 +137,7 @@ func (d *Document) addLoneCover(fits []Fit, r *route.Route, rs *route.Settings, 
 		m := route.MarkUnseen
 		var short []int
 		for b := range lones {
-			if lones[b].station != s || !slices.ContainsFunc(of, func(a int) bool { return in(&lones[a], &lones[b]) }) {
+			if lones[b].station != s || lones[b].object != nil || !slices.ContainsFunc(of, func(a int) bool { return in(&lones[a], &lones[b]) }) {
 				continue
 			}
 			switch lones[b].mark {
@@ -159,6 +197,40 @@ func (d *Document) addLoneCover(fits []Fit, r *route.Route, rs *route.Settings, 
 	added := false
 	for a := range lones {
 		if done[a] || lones[a].mark != route.MarkShort {
+			continue
+		}
+		if lones[a].object != nil {
+			// A line an object took the place of: its own finding.
+			done[a] = true
+			if nf, ok := objectLineCover(&lones[a], r, rs); ok {
+				if len(r.Stations) >= 2 {
+					stations := []int{lones[a].station}
+					marks := nearMarks([]int{a}, stations)
+					for _, cr := range route.CoverRuns(marks) {
+						if !slices.Contains(cr.Members, stations[0]) {
+							continue
+						}
+						br := route.BracketOf(cr, stop, marks, "the line")
+						nf.Message += "; " + br.Reach()
+						nf.ChainageFrom, nf.ChainageTo = br.Range()
+						break
+					}
+				}
+				d.Findings = append(d.Findings, nf)
+				added = true
+				// The object's own finding points to it.
+				key := r.Stations[lones[a].station].Key
+				for i := range d.Findings {
+					if g := &d.Findings[i]; g.Kind == string(route.KindDipole) && slices.Contains(g.Groups, key) &&
+						!strings.Contains(g.Message, "fit as well a shallow line") {
+						verdict := "less than"
+						if nf.Severity != string(route.SeverityWarning) {
+							verdict = "that may be less than"
+						}
+						g.Message += fmt.Sprintf("; the same readings fit as well a shallow line with cover %s the minimum, which a short live conductor would give (see the shallow-cover %s at %s): treat as live", verdict, nf.Severity, key)
+					}
+				}
+			}
 			continue
 		}
 		// The run: lines at successive stations, each in line with one of
@@ -284,6 +356,43 @@ type loneLine struct {
 	depthSigma, offsetSigma float64 // m
 	line                    route.Line
 	mark                    route.Mark // route.LoneMark at its station
+	// object, when not nil, is the magnetised object that took the
+	// line's place (checkLoneDipoles), and placed the line's station as
+	// it stood with the line (not given to the object); src.source is
+	// then -1.
+	object *route.Object
+	placed *route.Placed
+}
+
+// objectLineCover is the cover finding of a lone line l that a magnetised
+// object took the place of (checkLoneDipoles): route.LoneCover's, at its
+// own severity, with both readings named. A short live conductor (a
+// bonding lead, a stub, a service ending near the traverse) has a field
+// that falls faster than a long line's, and a point dipole fits it as
+// well as the line or better: in review a 0.3 A bonding lead 0.3 m down
+// across one traverse fitted a dipole 0.9 m down better by 231 in the
+// information criterion, and its shallow-cover warning had become an
+// info-level "magnetised object". The readings do not tell the two
+// apart, so the cover a crew must act on is kept.
+func objectLineCover(l *loneLine, r *route.Route, rs *route.Settings) (Finding, bool) {
+	f, ok := route.LoneCover(l.placed, l.line, rs, len(r.Stations) == 1)
+	if !ok {
+		return Finding{}, false
+	}
+	o := l.object
+	depth := fmt.Sprintf("%.2f m", o.Depth)
+	if o.DepthSigma > 0 {
+		depth = PlusMinus(o.Depth, o.DepthSigma) + " m"
+	}
+	tail := fmt.Sprintf("; the same readings fit as well a magnetised object %s below ground, reported on its own, which a short live conductor (a bonding lead, a stub, the end of a service) also resembles: a shallow live conductor or a magnetised object; treat as live and confirm before digging here", depth)
+	if at := strings.LastIndex(f.Message, ": confirm before digging here"); at >= 0 {
+		f.Message = f.Message[:at] + tail
+	} else {
+		f.Message += tail
+	}
+	nf := findingOf(f)
+	nf.Lone = true
+	return nf, true
 }
 
 // loneInLineK is how many of their combined sigmas two lone lines' fitted

@@ -32,11 +32,23 @@ import (
 // traverses reported once) when it fits the readings as well as the line
 // or better: its gain in the information criterion over the fit with
 // the line at least zero, not over dipoleBIC. The criterion already
-// counts the dipole's six parameters against the line's four or five, so
-// a real line, whose field along the traverse falls as the inverse
-// distance and not as its cube, keeps a lower criterion than any point
-// dipole put in its place. An object alone (the conductor then carrying
-// nothing) still needs dipoleBIC.
+// counts the dipole's six parameters against the line's four or five,
+// and a long line, whose field along the traverse falls as the inverse
+// distance and not as its cube, keeps a lower criterion than a point
+// dipole put in its place. A short one does not: a short current element
+// (a bonding lead, a stub, a service ending near the traverse) has a
+// field that falls faster than a long line's, and in review a 0.3 A lead
+// 0.3 m down across one traverse beside a 20 A cable fitted a dipole 0.9
+// m down better by 231; its shallow-cover warning had become an
+// info-level object. The readings do not tell the two apart, so the line
+// the object replaces (dipoleSearch.replaced, Fit.replaced) keeps its
+// cover check: where its cover is short, addLoneCover gives the finding
+// at the line's own severity naming both readings, "a shallow live
+// conductor or a magnetised object; treat as live" (objectLineCover),
+// and the object's own finding points to it; the object replaces the
+// line silently only where the line's cover is clear
+// (TestBondLeadKeepsShallowWarning). An object alone (the conductor then
+// carrying nothing) still needs dipoleBIC.
 //
 // A loneWeak line that was not so tested (the test did not run: an object
 // already kept at the group, a group the route does not use) keeps its
@@ -118,31 +130,40 @@ func checkLoneDipoles(fits []Fit, r *route.Route, tracks []builtTrack) bool {
 	return checkDipolesOf(fits, r, nil, cand, skip, 0, searchLone)
 }
 
-// searchLone searches f's fit for a magnetised object in place of its
-// loneWeak lines: from the fit's other lines (a weak line along the
-// conductor, such as a steel main's own small current, is kept: dropped,
-// the object takes its field and is misplaced towards the cable), the
-// object placed first where the grid puts it and then from each loneWeak
-// line's point, the search with the larger gain kept.
+// searchLone searches f's fit for a magnetised object in place of one of
+// its loneWeak lines at a time: the fit's other lines held (a weak line
+// along the conductor, such as a steel main's own small current, is
+// kept: dropped, the object takes its field and is misplaced towards the
+// cable; and so is every other weak line, which the object does not
+// explain: before fix-fx28n all of the group's weak lines went together,
+// and a real service beside a joint went with it), the object placed
+// where the grid puts it and from the line's point, the search with the
+// largest gain kept, with the line it replaces (dipoleSearch.replaced).
 func searchLone(f *Fit) *dipoleSearch {
 	res := f.Result
-	var lines []*inverse.SourceEstimate
 	var weak []int
 	for k := range res.Sources {
 		if loneWeak(res, k) {
 			weak = append(weak, k)
-			continue
 		}
-		lines = append(lines, &res.Sources[k])
 	}
-	if len(lines) == 0 || len(weak) == 0 {
+	if len(weak) == 0 || len(weak) == len(res.Sources) {
 		return nil
 	}
-	best := searchFrom(f, lines, nil)
+	var best *dipoleSearch
 	for _, k := range weak {
+		var lines []*inverse.SourceEstimate
+		for j := range res.Sources {
+			if j != k {
+				lines = append(lines, &res.Sources[j])
+			}
+		}
 		start := res.Sources[k].Point
-		if ds := searchFrom(f, lines, &start); ds != nil && (best == nil || ds.gain > best.gain) {
-			best = ds
+		for _, at := range []*[3]float64{nil, &start} {
+			if ds := searchFrom(f, lines, at); ds != nil && (best == nil || ds.gain > best.gain) {
+				ds.replaced = []int{k}
+				best = ds
+			}
 		}
 	}
 	return best
