@@ -66,6 +66,7 @@ type resultDoc struct {
 		DOF        int         `json:"dof"`
 		Background [3]float64  `json:"background_nt"`
 		OK         bool        `json:"ok"`
+		Problem    string      `json:"problem"`
 		Sources    []docSource `json:"sources"`
 		Notes      []string    `json:"notes"`
 		Widening   float64     `json:"sigma_widening"`
