@@ -554,7 +554,7 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 	d.addTracks(tracks)
 	d.addTrackPhases()
 	d.addCrossings()
-	d.addLoneCover(fits, r, rs, tracks)
+	d.addLoneCover(fits, r, rs, tracks, bs.TrackMinStations)
 	d.addCutShortCover(fits, r, rs, cutShort)
 	d.addPairCover(rs)
 	d.addCurrentRamps(fits)

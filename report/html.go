@@ -1565,7 +1565,14 @@ func LeastCover(d *Document) string {
 		line += "; cover not known over " + g + ", where no station was surveyed"
 	}
 	if l, ok := d.shallowLoneLine(); ok && l.cover < cands[best].cover {
-		line += fmt.Sprintf("; a further line that no conductor follows (seen at too few traverses: a crossing service, for example) lies shallower, under %s m at %s (chainage %.0f m)", pm(l.cover, l.sigma), l.key, l.chainage)
+		why := "seen at too few traverses: a crossing service, for example"
+		if l.along {
+			// A line along the route: a cable or pipe beside conductor
+			// 1 that no track links, not a crossing service (review
+			// rv28b; its finding says why).
+			why = "not linked into a track of its own: a cable or pipe along the route, for example; see its cover finding"
+		}
+		line += fmt.Sprintf("; a further line that no conductor follows (%s) lies shallower, under %s m at %s (chainage %.0f m)", why, pm(l.cover, l.sigma), l.key, l.chainage)
 		if g := d.groupByKey(l.key); g != nil && d.BaseGapOnly(g) {
 			// Its fit is sound; the base correction under it needs review.
 			line += ", a traverse marked for review (a gap in the base record)"
@@ -1634,6 +1641,9 @@ func (d *Document) shallowLoneLine() (c coverAt, ok bool) {
 				continue
 			}
 			c, ok = coverAt{key: g.Key, cover: cv, sigma: d.coverSigma(s.DepthSigma)}, true
+			if a, okA := route.PlanAngle(s.Direction, g.Sources[0].Direction); okA && a < route.AlongAngle {
+				c.along = true
+			}
 			if g.Chainage != nil {
 				c.chainage = *g.Chainage
 			}

@@ -14,7 +14,9 @@ import (
 // usable groups of r that no track follows (route.LoneCover: a service
 // crossing the route, seen at one traverse) and adds the findings, marked
 // Lone and sorted with SortFindings. tracks are the kept tracks; rs the
-// route settings.
+// route settings; trackMin the fewest groups a track needs
+// (BuildSettings.TrackMinStations), so that a line seen at more is not
+// said to be seen at too few (route.Line.TrackMin).
 //
 // A lone line seen in line (loneInLine) and shallow at successive usable
 // stations is one finding for the run (route.LoneRunCover), as the
@@ -24,7 +26,7 @@ import (
 // or three rows of findings.csv for one place (found in review). Lines
 // at stations that are not successive, or not in line by their own
 // sigmas, stay separate findings.
-func (d *Document) addLoneCover(fits []Fit, r *route.Route, rs *route.Settings, tracks []builtTrack) {
+func (d *Document) addLoneCover(fits []Fit, r *route.Route, rs *route.Settings, tracks []builtTrack, trackMin int) {
 	if rs == nil || rs.MinCover <= 0 {
 		return
 	}
@@ -280,6 +282,7 @@ func (d *Document) addLoneCover(fits []Fit, r *route.Route, rs *route.Settings, 
 		for i, b := range members {
 			ps[i], ls[i] = &r.Stations[lones[b].station], lones[b].line
 			ls[i].InLineWith = others
+			ls[i].TrackMin = trackMin
 		}
 		f, ok := route.LoneRunCover(ps, ls, rs, len(r.Stations) == 1)
 		if !ok {

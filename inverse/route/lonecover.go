@@ -81,20 +81,7 @@ func LoneRunCover(ps []*Placed, ls []Line, set *Settings, single bool) (Finding,
 		// taken in [0, 180)).
 		azText = fmt.Sprintf("%.0f", math.Mod(math.Round(az), 180))
 	}
-	why := "too few groups show it: a crossing service, or a conductor the other fits do not resolve"
-	if len(keys) > 1 {
-		why = "too few groups to follow it as a conductor: a crossing service, for example"
-	}
-	if n := len(inLine); n > 0 {
-		// Two or more groups do show it, in line (found in review: the
-		// same service at four traverses was "too few groups" four times).
-		others := andList(inLine)
-		fits, show := "fits", "show"
-		if n == 1 {
-			fits, show = "fit", "shows"
-		}
-		why = fmt.Sprintf("the %s at %s %s a line along it too, but too few groups to follow it as a conductor: a crossing service, for example", fits, others, show)
-	}
+	why := loneWhy(keys, inLine, l, p.Dir)
 	minimum := fmt.Sprintf("the %.2f m minimum (%s)", math.Abs(set.MinCover), code)
 	var msg string
 	if len(keys) == 1 {
@@ -136,4 +123,63 @@ func LoneMark(p *Placed, l Line, set *Settings) Mark {
 		return MarkClear
 	}
 	return MarkShort
+}
+
+// loneWhy says why a lone line seen at the stations keys, and in line at
+// the stations inLine, is not followed along the route, as the counts and
+// its direction are. "Too few groups" only where fewer than the caller's
+// least for a track (Line.TrackMin, when given) show it; and "a crossing
+// service" only for a line crossing the route (over AlongAngle in plan
+// from dir, the route's direction at its station): a line along it is a
+// parallel conductor the fits do not follow. A feeder running along the
+// street, seen at 8 of 15 traverses, was "too few groups to follow it as a
+// conductor: a crossing service, for example" (review rv28b): the fits
+// between took it into a go-and-return pair with its neighbour, or the
+// conductor the route follows moved between them, and no track linked its
+// stations.
+func loneWhy(keys, inLine []string, l Line, dir [3]float64) string {
+	along := false
+	if a, ok := PlanAngle(l.Dir, dir); ok && a < AlongAngle {
+		along = true
+	}
+	n := len(keys) + len(inLine)
+	what := "a crossing service, for example"
+	if along {
+		what = "a cable or pipe along the route, for example"
+	}
+	if l.TrackMin > 0 && n >= l.TrackMin {
+		return fmt.Sprintf("the fits at %s show a line in line with it too, %d groups in all, enough to follow it, but their fitted positions do not link into one track from group to group: the fits between place it elsewhere, miss it or take it into a go-and-return pair or the conductor followed (%s)", andList(inLine), n, what)
+	}
+	if len(inLine) > 0 {
+		// Two or more groups do show it, in line (found in review: the
+		// same service at four traverses was "too few groups" four times).
+		fits, show := "fits", "show"
+		if len(inLine) == 1 {
+			fits, show = "fit", "shows"
+		}
+		return fmt.Sprintf("the %s at %s %s a line along it too, but too few groups to follow it as a conductor: %s", fits, andList(inLine), show, what)
+	}
+	if len(keys) > 1 {
+		return "too few groups to follow it as a conductor: " + what
+	}
+	if along {
+		return "too few groups show it: a conductor along the route that the other fits do not resolve, for example"
+	}
+	return "too few groups show it: a crossing service, or a conductor the other fits do not resolve"
+}
+
+// AlongAngle is the angle in plan, degrees, within which a lone line runs
+// along the route rather than crossing it (loneWhy; the report's least
+// cover headline).
+const AlongAngle = 20.0
+
+// PlanAngle is the angle in plan between lines a and b, degrees in [0,
+// 90], and false when either is vertical or not a number.
+func PlanAngle(a, b [3]float64) (float64, bool) {
+	ha, hb := math.Hypot(a[0], a[1]), math.Hypot(b[0], b[1])
+	if !(ha > 0) || !(hb > 0) || !finite(ha) || !finite(hb) {
+		return 0, false
+	}
+	c := math.Min(1, math.Abs(a[0]*b[0]+a[1]*b[1])/(ha*hb))
+	return math.Acos(c) * 180 / math.Pi, true
 }

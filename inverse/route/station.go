@@ -185,6 +185,10 @@ type Line struct {
 	// that no track follows either and that lies along this one (the
 	// same conductor seen there: LoneCover says so); empty when none.
 	InLineWith []string
+	// TrackMin is the fewest groups at which the caller follows a line
+	// as a conductor of its own, 0 when not known: LoneRunCover says the
+	// line was seen at too few groups only when fewer than that show it.
+	TrackMin int
 }
 
 // Object is a magnetised object found beside the conductor: a point dipole
