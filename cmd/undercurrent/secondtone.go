@@ -63,6 +63,10 @@ type secondTone struct {
 	// its amplitude); 0 when there is none. mirrorShare and mirrorNT are
 	// its share and amplitude.
 	mirror, mirrorShare, mirrorNT float64
+	// evenMains names the even mains harmonic the line lies within
+	// secondToneMainsHz of ("" for none): the mains checks know the odd
+	// harmonics only.
+	evenMains string
 }
 
 // sidebands reports whether t and its mirror are at like amplitudes
@@ -150,7 +154,7 @@ func (pl demodPlan) findSecondTone(s *ingest.Samples, res *calibrate.DemodResult
 	if !ok {
 		return secondTone{}, false
 	}
-	t := secondTone{freq: f, share: share, nT: share * lp.sig}
+	t := secondTone{freq: f, share: share, nT: share * lp.sig, evenMains: pl.evenMainsHarmonic(f)}
 	m := 2*freq - f
 	if m <= 0 || (pl.fs > 0 && m >= 0.45*pl.fs) || pl.nearMainsHarmonic(m) {
 		return t, true
@@ -185,9 +189,9 @@ func (lp *lineProbe) peak(f, step float64) float64 {
 	return (lo + hi) / 2
 }
 
-// mainsWithin returns the harmonics of 50 and 60 Hz and of pl.mains
+// mainsWithin returns the odd harmonics of 50 and 60 Hz and of pl.mains
 // between lo and hi Hz from freq (either side), below 0.45 of the sample
-// rate.
+// rate: the lines the mains checks hold (nearMainsHarmonic).
 func (pl demodPlan) mainsWithin(freq, lo, hi float64) []float64 {
 	var out []float64
 	for _, m := range append([]float64{50, 60}, pl.mains...) {
@@ -195,7 +199,7 @@ func (pl demodPlan) mainsWithin(freq, lo, hi float64) []float64 {
 			continue
 		}
 		for h := math.Ceil((freq - hi) / m); h*m <= freq+hi; h++ {
-			if d := math.Abs(h*m - freq); h >= 1 && d >= lo && (pl.fs == 0 || h*m < 0.45*pl.fs) {
+			if d := math.Abs(h*m - freq); h >= 1 && math.Mod(h, 2) == 1 && d >= lo && (pl.fs == 0 || h*m < 0.45*pl.fs) {
 				out = append(out, h*m)
 			}
 		}
@@ -203,18 +207,37 @@ func (pl demodPlan) mainsWithin(freq, lo, hi float64) []float64 {
 	return out
 }
 
-// nearMainsHarmonic reports whether f lies within secondToneMainsHz of a
-// harmonic of 50 or 60 Hz or of a mains frequency fitted (pl.mains):
-// those lines are the mains checks' (pull, clash, unfitted).
+// nearMainsHarmonic reports whether f lies within secondToneMainsHz of an
+// odd harmonic of 50 or 60 Hz or of a mains frequency fitted (pl.mains):
+// those lines are the mains checks' (pull, clash, unfitted, all of which
+// know the odd harmonics only, as calibrate.MainsNuisance fits them). An
+// even harmonic is the second-tone check's: left to the mains checks, a
+// 3 A 10th harmonic (500 Hz) 12 Hz from a 512 Hz tracer pulled the check
+// to 511.953 Hz, and every traverse demodulated there read a pair 25
+// times the noise off (found in review).
 func (pl demodPlan) nearMainsHarmonic(f float64) bool {
 	for _, m := range append([]float64{50, 60}, pl.mains...) {
 		if m > 0 {
-			if h := math.Round(f / m); h >= 1 && math.Abs(f-h*m) < secondToneMainsHz {
+			if h := math.Round(f / m); h >= 1 && math.Mod(h, 2) == 1 && math.Abs(f-h*m) < secondToneMainsHz {
 				return true
 			}
 		}
 	}
 	return false
+}
+
+// evenMainsHarmonic names the even harmonic of 50 or 60 Hz or of
+// pl.mains within secondToneMainsHz of f ("the 10th harmonic of the
+// 50 Hz mains"); "" when there is none.
+func (pl demodPlan) evenMainsHarmonic(f float64) string {
+	for _, m := range append([]float64{50, 60}, pl.mains...) {
+		if m > 0 {
+			if h := math.Round(f / m); h >= 2 && math.Mod(h, 2) == 0 && math.Abs(f-h*m) < secondToneMainsHz {
+				return fmt.Sprintf("the %s of the %g Hz mains", harmonicName(h), m)
+			}
+		}
+	}
+	return ""
 }
 
 // residualAmplitude is the amplitude over the axes, nT, of a tone at f Hz
@@ -289,6 +312,9 @@ func secondToneWarning(t secondTone, freq, win, checked float64, fitted bool) st
 		w = fmt.Sprintf("a pair of lines at %.2f and %.2f Hz, either side of the %g Hz signal (about %.3g and %.3g nT, %s the signal's field where it was measured), is in the log: %s, not a mains line, so the two are fitted together or not at all", lo, hi, freq, loNT, hiNT, pairShare(loSh, hiSh), what)
 	} else {
 		w = fmt.Sprintf("a second tone at %.2f Hz, %.3g Hz from the %g Hz signal and not a mains line, is in the log (about %.3g nT, %s the signal's field where it was measured)", t.freq, d, freq, t.nT, shareOf(t.share))
+		if t.evenMains != "" {
+			w = fmt.Sprintf("a line at %.2f Hz, %.3g Hz from the %g Hz signal, is in the log (about %.3g nT, %s the signal's field where it was measured): %s, an even harmonic, which the mains' fit beside the signal (odd harmonics only) does not take, so it is fitted as a second tone", t.freq, d, freq, t.nT, shareOf(t.share), t.evenMains)
+		}
 	}
 	switch {
 	case checked > 0:
