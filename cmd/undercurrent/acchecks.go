@@ -1018,8 +1018,10 @@ func demodulateACLeftOut(o *locateOptions, s *ingest.Samples, leftOut []float64)
 		// frequency, in windows long enough to fit the two apart: the two
 		// frequencies are then fitted apart, the signal's in the windows,
 		// the tone's in the probe.
-		cw := toneWindow(math.Abs(tone.freq-o.freq), win)
-		pt := pl.withTone(tone.freq)
+		// A pair of sidebands (tone.mirror) is fitted together, in windows
+		// that fit the nearer apart.
+		cw := toneWindow(tone.nearest(o.freq), win)
+		pt := pl.withTone(tone.tones()...)
 		fit, err = check(pt, cw)
 		_, seen := estimateWindowFreq(fitWindows(fit), cw)
 		switch {
@@ -1071,7 +1073,32 @@ func demodulateACLeftOut(o *locateOptions, s *ingest.Samples, leftOut []float64)
 	off := est.freq - o.freq
 	span := longestGroupSpan(res.Windows, win)
 	turn := 360 * math.Abs(off) * span
-	if math.Abs(off) <= freqCheckSigmas*est.sigma || turn <= freqCheckDegrees {
+	held := func(e freqEstimate) bool {
+		return math.Abs(e.freq-o.freq) <= freqCheckSigmas*e.sigma || 360*math.Abs(e.freq-o.freq)*span <= freqCheckDegrees
+	}
+	if hasTone && !held(est) {
+		// The tone is fitted to take its pull off the estimate. Where the
+		// check without it holds the field at --freq, fitting it has not
+		// made the check better, only moved it: the line is then part of
+		// the signal, or of something the tone's model misses (a
+		// sideband whose mirror went unseen, one of several lines), and
+		// the pull the fit leaves is its own. The estimate is not acted
+		// on. A 512 Hz tracer with sidebands at 510 and 514 Hz, one of
+		// them fitted, read 512.0189 ± 0.0003 Hz, where the check
+		// without it read 512 Hz (found in review).
+		if f0, err0 := check(pl, win); err0 == nil {
+			if e0, ok0 := estimateWindowFreq(f0.Windows, win); ok0 && held(e0) {
+				d0, d1 := freqDecimals(e0.sigma), freqDecimals(est.sigma)
+				what := "tone"
+				if tone.mirror > 0 {
+					what = "pair of lines"
+				}
+				return res, win, append(res.Warnings, fmt.Sprintf("with the %s fitted beside the signal the windows' fitted frequencies put the AC field at %.*f ± %.*f Hz, and without it at %.*f ± %.*f Hz, at the %g Hz given: fitting it does not make the check better, only moves it (the %s may be part of the signal, or more lines than are fitted lie beside it), so that estimate is not acted on, and the results assume the %g Hz given",
+					what, d1, est.freq, d1, est.sigma, d0, e0.freq, d0, e0.sigma, o.freq, what, o.freq)), freqHints{groups: wanderHints(f0.Windows, o.freq, win)}, nil
+			}
+		}
+	}
+	if held(est) {
 		hints := freqHints{groups: wanderHints(fit.Windows, o.freq, win)}
 		// Not told from --freq, but perhaps not known well enough either:
 		// the offset plus its uncertainty may still turn the phase across
