@@ -54,12 +54,7 @@ func columnPulls(t *testing.T, set Settings, sig func(i int) [2]float64, own boo
 		sdI += pi * pi
 		sigD += e.DepthSigma
 		sigI += e.CurrentSigma
-		note = ""
-		for _, n := range res.Notes {
-			if strings.HasPrefix(n, PositionSigmaNote) {
-				note = n
-			}
-		}
+		note = positionNote(res)
 	}
 	r := float64(runs)
 	return math.Sqrt(sdD / r), math.Sqrt(sdI / r), sigD / r, sigI / r, note

@@ -178,7 +178,6 @@ func TestPositionSigmaFlooredNoise(t *testing.T) {
 	const trueI, trueD, noise = 25.0, 1.1, 2.0
 	line := Line{Point: [3]float64{0, 0, -trueD}, Dir: [3]float64{0, 1, 0}}
 	logged := traverse(81, -4, 4, 0, 0.3)
-	zero := 0.0
 	rng := rand.New(rand.NewPCG(26, 2))
 	for run := range 3 {
 		pts := make([][3]float64, len(logged))
@@ -188,22 +187,10 @@ func TestPositionSigmaFlooredNoise(t *testing.T) {
 			truePts[i] = [3]float64{p[0] + 0.2*rng.NormFloat64(), p[1] + 0.2*rng.NormFloat64(), p[2]}
 		}
 		f := simulate(truePts, []Line{line}, []float64{trueI}, [3]float64{-150, 19200, -45100}, noise, rng)
-		fit := func(s Settings) *Result {
-			s.Count, s.ReferenceZ = 1, &zero
-			res, err := FitLines(&Problem{Points: pts, Fields: f}, &s)
-			if err != nil {
-				t.Fatal(err)
-			}
-			return res
-		}
+		fit := oneLineFit(t, pts, f)
 		plain := fit(Settings{})
 		with := fit(Settings{PositionSigmaPlan: 0.2, PositionSigmaUp: 0.2})
-		note := ""
-		for _, n := range with.Notes {
-			if strings.HasPrefix(n, PositionSigmaNote) {
-				note = n
-			}
-		}
+		note := positionNote(with)
 		t.Logf("run %d: depth plain %.4f, with %.4f ± %.4f; %s", run, plain.Sources[0].Depth, with.Sources[0].Depth, with.Sources[0].DepthSigma, note)
 		if strings.Contains(note, "widened") || strings.Contains(note, " 1 rounds") {
 			t.Errorf("run %d: note %q: want a weighted fit of more than one round, not widened", run, note)
@@ -233,7 +220,6 @@ func TestPositionSigmaSystematic(t *testing.T) {
 	const trueI, trueD, noise = 25.0, 1.1, 2.0
 	line := Line{Point: [3]float64{0, 0, -trueD}, Dir: [3]float64{0, 1, 0}}
 	logged := traverse(81, -4, 4, 0, 0.3)
-	zero := 0.0
 	rng := rand.New(rand.NewPCG(26, 3))
 	a := 0.997
 	var sdPlain, sdWith, ePlain, eWith float64
@@ -251,14 +237,7 @@ func TestPositionSigmaSystematic(t *testing.T) {
 			truePts[i] = [3]float64{p[0] - ex, p[1] - ey, p[2]}
 		}
 		f := simulate(truePts, []Line{line}, []float64{trueI}, [3]float64{-150, 19200, -45100}, noise, rng)
-		fit := func(s Settings) *Result {
-			s.Count, s.ReferenceZ = 1, &zero
-			res, err := FitLines(&Problem{Points: pts, Fields: f}, &s)
-			if err != nil {
-				t.Fatal(err)
-			}
-			return res
-		}
+		fit := oneLineFit(t, pts, f)
 		plain := fit(Settings{})
 		with := fit(Settings{PositionSigmaPlan: 0.2, PositionSigmaUp: 0.01})
 		p := (plain.Sources[0].Depth - trueD) / plain.Sources[0].DepthSigma
@@ -302,26 +281,13 @@ func TestPositionSigmaRefusesModelMiss(t *testing.T) {
 	cable := Line{Point: [3]float64{0, 0, -1.1}, Dir: [3]float64{0, 1, 0}}
 	cross := Line{Point: [3]float64{0, 12, -1.0}, Dir: [3]float64{math.Sin(math.Pi / 3), math.Cos(math.Pi / 3), 0}}
 	pts := traverse(81, -4, 4, 0, 0.3)
-	zero := 0.0
 	for seed := range uint64(3) {
 		rng := rand.New(rand.NewPCG(28, seed))
 		f := simulate(pts, []Line{cable, cross}, []float64{25, 20}, [3]float64{-150, 19200, -45100}, noise, rng)
-		fit := func(s Settings) *Result {
-			s.Count, s.ReferenceZ = 1, &zero
-			res, err := FitLines(&Problem{Points: pts, Fields: f}, &s)
-			if err != nil {
-				t.Fatal(err)
-			}
-			return res
-		}
+		fit := oneLineFit(t, pts, f)
 		plain := fit(Settings{})
 		with := fit(Settings{PositionSigmaPlan: 0.02, PositionSigmaUp: 0.02})
-		note := ""
-		for _, n := range with.Notes {
-			if strings.HasPrefix(n, PositionSigmaNote) {
-				note = n
-			}
-		}
+		note := positionNote(with)
 		p, w := plain.Sources[0], with.Sources[0]
 		t.Logf("seed %d: plain %.3f ± %.3f A rms %.1f nT; with 0.02 m %.3f ± %.3f A; %s", seed, math.Abs(p.Current), p.CurrentSigma, plain.RMS, math.Abs(w.Current), w.CurrentSigma, note)
 		if !strings.Contains(note, PositionSigmaRefusedNote) {
@@ -331,4 +297,30 @@ func TestPositionSigmaRefusesModelMiss(t *testing.T) {
 			t.Errorf("seed %d: %.4f ± %.4f A with the sigmas refused, %.4f ± %.4f A plain: want the plain fit", seed, w.Current, w.CurrentSigma, p.Current, p.CurrentSigma)
 		}
 	}
+}
+
+// oneLineFit fits one line to the readings f at pts, the ground at z = 0,
+// with the settings given beside those.
+func oneLineFit(t *testing.T, pts, f [][3]float64) func(Settings) *Result {
+	t.Helper()
+	zero := 0.0
+	return func(s Settings) *Result {
+		s.Count, s.ReferenceZ = 1, &zero
+		res, err := FitLines(&Problem{Points: pts, Fields: f}, &s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		return res
+	}
+}
+
+// positionNote is res's position-sigma note, or "" when it has none.
+func positionNote(res *Result) string {
+	note := ""
+	for _, n := range res.Notes {
+		if strings.HasPrefix(n, PositionSigmaNote) {
+			note = n
+		}
+	}
+	return note
 }

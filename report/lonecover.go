@@ -195,6 +195,25 @@ func (d *Document) addLoneCover(fits []Fit, r *route.Route, rs *route.Settings, 
 	stop := func(i int, unseen bool) route.Stop {
 		return route.Stop{Name: r.Stations[i].Key, Chainage: r.Stations[i].Chainage, Unseen: unseen}
 	}
+	// reach brackets nf along the route: the run of stations (lines
+	// members) holding stations[0] reaches to the nearest stations either
+	// side that show the line clear or do not show it. None with one
+	// station.
+	reach := func(nf *Finding, members, stations []int) {
+		if len(r.Stations) < 2 {
+			return
+		}
+		marks := nearMarks(members, stations)
+		for _, cr := range route.CoverRuns(marks) {
+			if !slices.Contains(cr.Members, stations[0]) {
+				continue
+			}
+			br := route.BracketOf(cr, stop, marks, "the line")
+			nf.Message += "; " + br.Reach()
+			nf.ChainageFrom, nf.ChainageTo = br.Range()
+			return
+		}
+	}
 	done := make([]bool, len(lones))
 	added := false
 	for a := range lones {
@@ -205,19 +224,7 @@ func (d *Document) addLoneCover(fits []Fit, r *route.Route, rs *route.Settings, 
 			// A line an object took the place of: its own finding.
 			done[a] = true
 			if nf, ok := objectLineCover(&lones[a], r, rs); ok {
-				if len(r.Stations) >= 2 {
-					stations := []int{lones[a].station}
-					marks := nearMarks([]int{a}, stations)
-					for _, cr := range route.CoverRuns(marks) {
-						if !slices.Contains(cr.Members, stations[0]) {
-							continue
-						}
-						br := route.BracketOf(cr, stop, marks, "the line")
-						nf.Message += "; " + br.Reach()
-						nf.ChainageFrom, nf.ChainageTo = br.Range()
-						break
-					}
-				}
+				reach(&nf, []int{a}, []int{lones[a].station})
 				d.Findings = append(d.Findings, nf)
 				added = true
 				// The object's own finding points to it.
@@ -328,18 +335,7 @@ func (d *Document) addLoneCover(fits []Fit, r *route.Route, rs *route.Settings, 
 		// degrees between two traverses was bounded by the other's fit
 		// as one "whose fits do not show the line", though it did (both
 		// found in review). None with one station.
-		if len(r.Stations) >= 2 {
-			marks := nearMarks(members, stations)
-			for _, cr := range route.CoverRuns(marks) {
-				if !slices.Contains(cr.Members, stations[0]) {
-					continue
-				}
-				br := route.BracketOf(cr, stop, marks, "the line")
-				nf.Message += "; " + br.Reach()
-				nf.ChainageFrom, nf.ChainageTo = br.Range()
-				break
-			}
-		}
+		reach(&nf, members, stations)
 		d.Findings = append(d.Findings, nf)
 		added = true
 	}
