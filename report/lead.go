@@ -39,9 +39,15 @@ import (
 // A group whose strongest line belongs to a go-and-return pair or a
 // same-way split (inverse.Result.Pairs, Opposed, SameWay, which inverse
 // forms about the strongest line) keeps it: the route follows the pair's
-// centre or the split's sum there. A swapped fit is a copy of the caller's
-// Result with its two lines exchanged (RelativePhase, not reported, stays
-// relative to the fit's strongest line).
+// centre or the split's sum there. At AC an Opposed line counts so only
+// within polyphaseReturnDeg of anti-phase (opposedReturn): the cores of a
+// balanced three-phase circuit, 120 degrees apart, are each "opposed" to
+// the strongest, and conductor 1 was whichever core the noise made the
+// strongest, 0.3-0.6 m from traverse to traverse on a flat circuit, no
+// three-phase set named (review rv28c). A swapped fit is a copy of the
+// caller's Result with its two lines exchanged (withLead: Opposed and
+// SameWay, formed about the line moved, dropped; RelativePhase, not
+// reported, stays relative to the fit's strongest line).
 
 // leadK is the number of combined sigmas within which two lines' currents
 // are taken as not told apart (leadByPosition).
@@ -55,7 +61,7 @@ func leadCandidates(f *Fit, ac bool) []int {
 	res := f.Result
 	if res == nil || f.Dipole || f.object != nil || f.sumSplit || len(res.Sources) < 2 ||
 		!(res.Status.Converged() || res.Status == inverse.Stalled) ||
-		len(res.Opposed) > 0 || len(res.SameWay) > 0 {
+		opposedReturn(res, ac) || len(res.SameWay) > 0 {
 		return nil
 	}
 	s0 := &res.Sources[0]
@@ -80,6 +86,52 @@ func leadCandidates(f *Fit, ac bool) []int {
 		}
 	}
 	return out
+}
+
+// polyphaseReturnDeg is the angle, degrees, from anti-phase to the
+// strongest line within which an AC line that inverse pairs with it as
+// carrying the opposite current (Result.Opposed: over 90 degrees apart)
+// may be its return, and keeps the fit's lines in their order
+// (opposedReturn). It is the angle within which addTrackPhases words a
+// conductor not read as a return as one that an inductive path may turn
+// so far; the cores of a three-phase circuit lie 120 degrees apart, 60
+// from anti-phase.
+const polyphaseReturnDeg = 45.0
+
+// opposedReturn reports whether the strongest line of res has a line
+// beside it carrying the opposite current that may be its return, the
+// two a go-and-return pair the route follows by its centre (circuitOf):
+// for DC any such line (Result.Opposed), for AC one whose phase lies
+// within polyphaseReturnDeg of anti-phase to the strongest's (each read
+// along its own direction, turned where the two directions differ in
+// sense). The cores of a three-phase circuit are 120 degrees apart, so
+// inverse pairs each two of them as opposed; taken as a go-and-return
+// pair, their order was never changed, and where their currents are
+// balanced conductor 1 was whichever core the noise made the strongest,
+// moving between cores from traverse to traverse (leadByPosition).
+func opposedReturn(res *inverse.Result, ac bool) bool {
+	if len(res.Opposed) == 0 {
+		return false
+	}
+	if !ac {
+		return true
+	}
+	s0 := &res.Sources[0]
+	for _, p := range res.Opposed {
+		j := p.Lines[0] + p.Lines[1] // one of them is 0, the strongest
+		if j <= 0 || j >= len(res.Sources) {
+			return true
+		}
+		o := &res.Sources[j]
+		rel := o.Phase - s0.Phase
+		if s0.Dir[0]*o.Dir[0]+s0.Dir[1]*o.Dir[1]+s0.Dir[2]*o.Dir[2] < 0 {
+			rel += 180
+		}
+		if 180-math.Abs(wrapDeg(rel)) <= polyphaseReturnDeg {
+			return true
+		}
+	}
+	return false
 }
 
 // pointToLine is the distance in space from point p to the line through q
@@ -164,10 +216,10 @@ func leadByPosition(fits []Fit, ac bool) {
 		if pick == 0 {
 			continue
 		}
-		r := *res
-		r.Sources = append([]inverse.SourceEstimate(nil), res.Sources...)
-		r.Sources[0], r.Sources[pick] = r.Sources[pick], r.Sources[0]
-		fits[bi].Result = &r
+		// withLead drops the lines inverse paired with the strongest as
+		// opposed (Result.Opposed, here none that may be its return:
+		// leadCandidates); they describe the line now moved.
+		fits[bi].Result = withLead(res, pick)
 	}
 }
 

@@ -172,14 +172,16 @@ func (m swapLine) aside(l swapLine, u [2]float64) float64 {
 // are no pair: refused for any opposite line, conductor 1 was never
 // exchanged between them and jumped cables (a false 50 A step at 1.5 m,
 // 45 A at 3 m) with both cables said to end, at 10 of 10 seeds
-// (TestSwapCloseCablesOppositeSign).
+// (TestSwapCloseCablesOppositeSign). For AC only a line within
+// polyphaseReturnDeg of anti-phase counts so (opposedReturn): the other
+// cores of a three-phase circuit, 120 degrees off, are no return.
 func swapFree(f *Fit, ac bool) bool {
 	r := f.Result
 	if r == nil || f.Dipole || f.object != nil || f.sumSplit || f.crossPairs != nil || len(r.Sources) < 2 ||
 		!(r.Status.Converged() || r.Status == inverse.Stalled) || len(r.SameWay) > 0 {
 		return false
 	}
-	if len(r.Opposed) > 0 && len(partnerCandidates(f, ac)) > 0 {
+	if opposedReturn(r, ac) && len(partnerCandidates(f, ac)) > 0 {
 		return false
 	}
 	for _, p := range r.Pairs {
