@@ -557,6 +557,14 @@ type Result struct {
 	// radians, strengths in A or nT).
 	Covariance *mat.SymDense
 	ParamNames []string
+	// LineCurrents are, for an AC FitLines fit, the lines' fitted complex
+	// currents as parametrised, A RMS, in the order of the covariance's
+	// lines (lineK.current.re and .im in ParamNames): each line's
+	// Sources entry reads the same phasor, negated where its Dir was
+	// turned to an azimuth in [0, 180). A caller that reorders Sources can
+	// find a line's covariance by its current's magnitude. Nil for DC and
+	// FitStrengths.
+	LineCurrents []complex128
 	// DepthReference says what depths are measured from: "ReferenceZ" or "mean sensor
 	// height"; ReferenceZ is that height (m).
 	DepthReference string

@@ -1041,6 +1041,28 @@ func paramNames(sp *separable) []string {
 	return names
 }
 
+// lineCurrents is the complex current of each line in the covariance's
+// order, read from the parameter values v named by names (paramNames):
+// lineK.current.re and lineK.current.im, until a line has neither.
+func lineCurrents(names []string, v []float64) []complex128 {
+	if len(names) != len(v) {
+		return nil
+	}
+	at := make(map[string]int, len(names))
+	for i, n := range names {
+		at[n] = i
+	}
+	var out []complex128
+	for l := 0; ; l++ {
+		re, okRe := at[sourceName(lineSource, l, strengthNames+4)]
+		im, okIm := at[sourceName(lineSource, l, strengthNames+8)]
+		if !okRe || !okIm {
+			return out
+		}
+		out = append(out, complex(v[re], v[im]))
+	}
+}
+
 // Source kinds and parameter suffixes of the parameter names: for source kind k,
 // sourceSuffix[k][p] is the name of parameter p after "line1.". From strengthNames
 // on come the strengths: current (lines) or moment.e, .n, .u (dipoles), plain, .re
@@ -1159,6 +1181,9 @@ func (f *fitter) report(c *candidate, scores []ModelScore) (*Result, error) {
 	}
 	if len(r.Opposed) == 0 {
 		r.SameWay = f.sameWayOf(c, su)
+	}
+	if sp.nrhs == 2 {
+		r.LineCurrents = lineCurrents(su.names, su.v)
 	}
 	if c.keptGain > 0 {
 		f.markKept(r, c.keptGain)

@@ -552,7 +552,13 @@ func Build(head Document, fits []Fit, set *BuildSettings) (*Document, error) {
 		}
 	}
 	d.addTracks(tracks)
-	d.addTrackPhases()
+	byKey := make(map[string]*inverse.Result, len(fits))
+	for _, f := range fits {
+		if f.Result != nil {
+			byKey[f.Key] = f.Result
+		}
+	}
+	d.addTrackPhasesWith(byKey)
 	d.addCrossings()
 	d.addLoneCover(fits, r, rs, tracks, bs.TrackMinStations)
 	d.addCutShortCover(fits, r, rs, cutShort)
@@ -1106,8 +1112,12 @@ func circuitOf(f *Fit, ac bool) (p *inverse.PairEstimate, strict, usable bool) {
 func returnShareClause(t *Track) string {
 	if len(t.PolyphaseSet) == 3 && t.PolyphaseResidualA != nil && t.PolyphaseResidualSigmaA != nil {
 		s := t.PolyphaseSet
-		return fmt.Sprintf("; conductors %d, %d and %d have phases about 120° apart, as the three phases of one three-phase circuit have: if they are one circuit, its residual (the phasor sum of the three currents, what returns by a neutral, earth or conductors outside the survey) is %s A; separate circuits on those phases give the sum no meaning",
-			s[0], s[1], s[2], pm(*t.PolyphaseResidualA, *t.PolyphaseResidualSigmaA))
+		var phase string
+		if t.PolyphaseResidualPhaseDeg != nil && t.PolyphaseResidualPhaseSigmaDeg != nil {
+			phase = fmt.Sprintf(" at %s° from conductor 1's phase (read along conductor 1's direction; with the currents about 120° apart, the phase it lies nearest carries the most current)", pm(*t.PolyphaseResidualPhaseDeg, *t.PolyphaseResidualPhaseSigmaDeg))
+		}
+		return fmt.Sprintf("; conductors %d, %d and %d have phases about 120° apart, as the three phases of one three-phase circuit have: if they are one circuit, its residual (the phasor sum of the three currents, what returns by a neutral, earth or conductors outside the survey) is %s A%s; separate circuits on those phases give the sum no meaning",
+			s[0], s[1], s[2], pm(*t.PolyphaseResidualA, *t.PolyphaseResidualSigmaA), phase)
 	}
 	if t.ReturnOffDeg != nil && t.ReturnOffSigmaDeg != nil {
 		return fmt.Sprintf("; not read as a return: %s° from anti-phase (a return through an inductive path can be so far off)", pm(*t.ReturnOffDeg, *t.ReturnOffSigmaDeg))

@@ -823,6 +823,13 @@ type Track struct {
 	PolyphaseSet            []int    `json:"polyphase_set,omitempty"`
 	PolyphaseResidualA      *float64 `json:"polyphase_residual_a,omitempty"`
 	PolyphaseResidualSigmaA *float64 `json:"polyphase_residual_sigma_a,omitempty"`
+	// PolyphaseResidualPhaseDeg is, with PolyphaseResidualA, the
+	// residual's phase less conductor 1's, degrees in (-180, 180] (all read
+	// along conductor 1's direction), and its one-sigma: between which
+	// phases the load is heaviest. Nil where the residual is within three
+	// sigmas of zero (its phase then means nothing).
+	PolyphaseResidualPhaseDeg      *float64 `json:"polyphase_residual_phase_deg,omitempty"`
+	PolyphaseResidualPhaseSigmaDeg *float64 `json:"polyphase_residual_phase_sigma_deg,omitempty"`
 }
 
 // Crossing is how a further conductor runs at an angle to conductor 1.

@@ -3,7 +3,10 @@ package report
 import (
 	"fmt"
 	"math"
+	"math/cmplx"
 	"sort"
+
+	"undercurrent/inverse"
 )
 
 // crossPhaseCos is the least |cosine| of the angle in plan between a
@@ -152,12 +155,18 @@ const returnWordTolDeg = 45
 // a second return's current as gone to remote earth (12.44 A said for
 // 6.45 A), and a phase 40° off with a sigma of 2.7° passed (found in
 // review).
-func (d *Document) addTrackPhases() {
+func (d *Document) addTrackPhases() { d.addTrackPhasesWith(nil) }
+
+// addTrackPhasesWith is addTrackPhases with the groups' fits by key, whose
+// covariances give a three-phase set's residual its sigmas
+// (polyphaseResidual); nil takes the stations' sigmas as independent.
+func (d *Document) addTrackPhasesWith(fits map[string]*inverse.Result) {
 	for i := range d.Conductors {
 		t := &d.Conductors[i]
 		t.PhaseFromConductor1, t.PhaseFromConductor1Sigma = nil, nil
 		t.ReturnShare, t.ReturnShareSigma, t.NetToEarthA, t.NetToEarthSigmaA = nil, nil, nil, nil
 		t.PolyphaseSet, t.PolyphaseResidualA, t.PolyphaseResidualSigmaA = nil, nil, nil
+		t.PolyphaseResidualPhaseDeg, t.PolyphaseResidualPhaseSigmaDeg = nil, nil
 		t.ReturnSet, t.ReturnOffDeg, t.ReturnOffSigmaDeg = nil, nil, nil
 		if p, sg, _, ok := trackPhase(d, t); ok {
 			t.PhaseFromConductor1, t.PhaseFromConductor1Sigma = &p, &sg
@@ -170,10 +179,13 @@ func (d *Document) addTrackPhases() {
 		if d.Conductors[b].Number > last.Number {
 			last = &d.Conductors[b]
 		}
-		if r, sr, ok := polyphaseResidual(d, &d.Conductors[a], &d.Conductors[b]); ok {
+		if ps, ok := polyphaseResidual(d, fits, &d.Conductors[a], &d.Conductors[b]); ok {
 			set := []int{1, d.Conductors[a].Number, d.Conductors[b].Number}
 			sort.Ints(set)
-			last.PolyphaseSet, last.PolyphaseResidualA, last.PolyphaseResidualSigmaA = set, &r, &sr
+			last.PolyphaseSet, last.PolyphaseResidualA, last.PolyphaseResidualSigmaA = set, &ps.Res, &ps.Sigma
+			if ps.PhaseOK {
+				last.PolyphaseResidualPhaseDeg, last.PolyphaseResidualPhaseSigmaDeg = &ps.Phase, &ps.PhaseSigma
+			}
 		}
 	}
 	var rets []int
@@ -251,28 +263,56 @@ func (d *Document) polyphaseSet() (a, b int, ok bool) {
 	return a, b, a >= 0 && b >= 0
 }
 
-// polyphaseResidual is the magnitude of the phasor sum of conductor 1's
-// and further conductors ta's and tb's currents, |I1 + Ia + Ib|, A, and its
-// sigma: a three-phase circuit's residual, what returns by a neutral,
-// earth or conductors outside the survey. Each group where all three were
-// used with phases (all read along conductor 1's direction, alongPhases)
-// gives one, with a first-order sigma from the currents' and phases'
-// sigmas (their correlation in the fit left out, as trackReturn does);
-// they are averaged with inverse-variance weights and widened by the
-// Birge ratio (birgeMean). ok is false where no group has all three, or
-// conductor 1 is a pair read as its net.
-func polyphaseResidual(d *Document, ta, tb *Track) (res, sigma float64, ok bool) {
-	return phasorSum(d, ta, tb)
+// polyphaseResidual is a three-phase circuit's residual: the phasor sum
+// of conductor 1's and further conductors ta's and tb's currents,
+// I1 + Ia + Ib, what returns by a neutral, earth or conductors outside
+// the survey. Each group where all three were used with phases (all read
+// along conductor 1's direction, alongPhases) gives its magnitude and its
+// phase from conductor 1's, with first-order sigmas from the covariance
+// of the three lines' complex currents in the group's fit (fits, by group
+// key; stationCov): the cores' currents are strongly correlated in one
+// fit, and their sum is far better determined than each. Before, the
+// stations' own sigmas were combined as if independent, and the residual
+// of 200/150/120 A cores read 70.00 ± 2.9 A (± 10-12 A in trefoil) where
+// seeds scattered by 0.005 A, and no phase was given (found in review).
+// The groups' values are averaged with inverse-variance weights and
+// widened by the Birge ratio (birgeMean); the phase is given only where
+// the residual lies three sigmas or more from zero. ok is false where no
+// group has all three, or conductor 1 is a pair read as its net.
+func polyphaseResidual(d *Document, fits map[string]*inverse.Result, ta, tb *Track) (ps phasorSumResult, ok bool) {
+	return phasorSumOf(d, fits, ta, tb)
+}
+
+// phasorSumResult is phasorSumOf's answer: the magnitude of a phasor sum,
+// A, and its sigma, and, when PhaseOK, its phase from conductor 1's,
+// degrees in (-180, 180], and its sigma.
+type phasorSumResult struct {
+	Res, Sigma        float64
+	Phase, PhaseSigma float64
+	PhaseOK           bool
 }
 
 // phasorSum is the magnitude of the phasor sum of conductor 1's current
 // and further conductors ts' currents, |I1 + ΣIk|, A, and its sigma, as
-// polyphaseResidual describes: over the groups where all were used with
-// phases, first order in the currents' and phases' sigmas with their
-// correlations in the fit left out, Birge-widened inverse-variance mean.
+// phasorSumOf gives it without the fits' covariances: first order in the
+// stations' current and phase sigmas with their correlations in the fit
+// left out, Birge-widened inverse-variance mean.
 func phasorSum(d *Document, ts ...*Track) (res, sigma float64, ok bool) {
+	ps, ok := phasorSumOf(d, nil, ts...)
+	return ps.Res, ps.Sigma, ok
+}
+
+// phasorSumOf is the phasor sum of conductor 1's current and further
+// conductors ts' currents over the groups where all were used with
+// phases, each read along conductor 1's direction: its magnitude and its
+// phase from conductor 1's, each group's with first-order sigmas from the
+// covariance of the lines' complex currents (stationCov: the group's fit's
+// where fits has it and its lines are found there, else the stations' own
+// sigmas taken as independent), averaged with inverse-variance weights
+// and widened by the Birge ratio when the groups scatter beyond them.
+func phasorSumOf(d *Document, fits map[string]*inverse.Result, ts ...*Track) (out phasorSumResult, ok bool) {
 	if d.Route == nil || d.Route.PairNet {
-		return 0, 0, false
+		return out, false
 	}
 	main := map[string]Station{}
 	for _, s := range d.Route.Stations {
@@ -293,13 +333,12 @@ func phasorSum(d *Document, ts ...*Track) (res, sigma float64, ok bool) {
 	for k, t := range ts {
 		others[k] = at(t)
 	}
-	type ph struct{ i, si, p, sp float64 }
-	var rs, ws []float64
+	var rs, ws, phs, pws []float64
 	for _, m := range d.Route.Stations {
 		if _, found := main[m.Key]; !found {
 			continue
 		}
-		ps := []ph{{math.Abs(m.Current), m.CurrentSigma, 0, *m.PhaseSigma}}
+		lines := []phasorLine{{i: math.Abs(m.Current), si: m.CurrentSigma, sp: *m.PhaseSigma}}
 		all := true
 		for _, o := range others {
 			x, found := o[m.Key]
@@ -312,41 +351,209 @@ func phasorSum(d *Document, ts ...*Track) (res, sigma float64, ok bool) {
 				all = false
 				break
 			}
-			ps[0].p = p1
-			ps = append(ps, ph{math.Abs(x.Current), x.CurrentSigma, pa, *x.PhaseSigma})
+			lines[0].p = p1
+			lines = append(lines, phasorLine{math.Abs(x.Current), x.CurrentSigma, pa, *x.PhaseSigma})
 		}
 		if !all {
 			continue
 		}
-		var re, im float64
-		for _, q := range ps {
-			re += q.i * math.Cos(q.p*math.Pi/180)
-			im += q.i * math.Sin(q.p*math.Pi/180)
+		c := stationCov(fits[m.Key], lines)
+		var sum complex128
+		for _, q := range lines {
+			sum += q.phasor()
 		}
-		r := math.Hypot(re, im)
+		r := cmplx.Abs(sum)
 		var v float64
 		if r > 0 {
-			arg := math.Atan2(im, re)
-			for _, q := range ps {
-				dl := q.p*math.Pi/180 - arg
-				v += sq(math.Cos(dl)*q.si) + sq(q.i*math.Sin(dl)*q.sp*math.Pi/180)
-			}
+			// d|S| = g·dS, g the unit vector along S, for every line.
+			g := [2]float64{real(sum) / r, imag(sum) / r}
+			v = quadForm(c, len(lines), func(k int) [2]float64 { return g })
 		} else {
-			for _, q := range ps {
+			for _, q := range lines {
 				v += sq(q.si)
 			}
 		}
-		sg := math.Sqrt(v)
-		if !(sg > 0) || math.IsInf(sg, 0) {
+		if !(v > 0) || math.IsInf(v, 0) {
 			continue
 		}
 		rs, ws = append(rs, r), append(ws, 1/v)
+		p1 := lines[0].phasor()
+		if r > 0 && cmplx.Abs(p1) > 0 {
+			// d(arg S - arg I1): h/|S| for every line, less h1/|I1| for
+			// conductor 1's, h the unit vector square to each.
+			h := [2]float64{-imag(sum) / r / r, real(sum) / r / r}
+			a1 := cmplx.Abs(p1)
+			h1 := [2]float64{-imag(p1) / a1 / a1, real(p1) / a1 / a1}
+			vp := quadForm(c, len(lines), func(k int) [2]float64 {
+				if k == 0 {
+					return [2]float64{h[0] - h1[0], h[1] - h1[1]}
+				}
+				return h
+			})
+			ph := wrapDeg((cmplx.Phase(sum) - cmplx.Phase(p1)) * 180 / math.Pi)
+			if len(phs) > 0 {
+				ph = phs[0] + wrapDeg(ph-phs[0])
+			}
+			if sp := math.Sqrt(vp) * 180 / math.Pi; sp > 0 && !math.IsInf(sp, 0) {
+				phs, pws = append(phs, ph), append(pws, 1/(sp*sp))
+			}
+		}
 	}
 	if len(rs) == 0 {
-		return 0, 0, false
+		return out, false
 	}
-	res, sigma = birgeMean(rs, ws)
-	return res, sigma, true
+	out.Res, out.Sigma = birgeMean(rs, ws)
+	if len(phs) > 0 && out.Res >= 3*out.Sigma {
+		p, sp := birgeMean(phs, pws)
+		out.Phase, out.PhaseSigma, out.PhaseOK = wrapDeg(p), sp, true
+	}
+	return out, true
+}
+
+// phasorLine is one line's current at a station, read along conductor
+// 1's direction: RMS current i, A, and phase p, degrees, with sigmas si and
+// sp.
+type phasorLine struct{ i, si, p, sp float64 }
+
+func (q phasorLine) phasor() complex128 { return cmplx.Rect(q.i, q.p*math.Pi/180) }
+
+// quadForm is Σ_jk a_j' C_jk a_k for the 2n x 2n covariance c of n lines'
+// (real, imaginary) parts and the gradient a(k) of each line's.
+func quadForm(c []float64, n int, a func(k int) [2]float64) float64 {
+	var v float64
+	for j := range n {
+		aj := a(j)
+		for k := range n {
+			ak := a(k)
+			for x := range 2 {
+				for y := range 2 {
+					v += aj[x] * c[(2*j+x)*2*n+2*k+y] * ak[y]
+				}
+			}
+		}
+	}
+	return v
+}
+
+// stationCov is the 2n x 2n covariance (row-major) of the n lines' complex
+// currents at one station, read along conductor 1's direction (real and
+// imaginary parts of each in turn). Where res, the group's fit, holds each
+// line's complex current (inverse.Result.LineCurrents, found by the
+// line's current's magnitude, one line each) with its covariance, it is
+// that covariance turned into the station's phasors (P = u c, |u| = 1:
+// the orientation of each line's direction) and each line's block scaled
+// so that its variance is its station's (the station's sigmas may be
+// widened beyond the fit's, and are kept); the correlations between the
+// lines are the fit's. Otherwise the lines are taken as independent, each
+// with its current's sigma along its phasor and its phase's across it.
+func stationCov(res *inverse.Result, lines []phasorLine) []float64 {
+	n := len(lines)
+	c := make([]float64, 4*n*n)
+	if fitCov(res, lines, c) {
+		return c
+	}
+	clear(c)
+	for k, q := range lines {
+		th := q.p * math.Pi / 180
+		g := [2]float64{math.Cos(th), math.Sin(th)}
+		h := [2]float64{-g[1], g[0]}
+		st := q.i * q.sp * math.Pi / 180
+		for x := range 2 {
+			for y := range 2 {
+				c[(2*k+x)*2*n+2*k+y] = sq(q.si)*g[x]*g[y] + sq(st)*h[x]*h[y]
+			}
+		}
+	}
+	return c
+}
+
+// fitCov fills c with the fit's covariance of lines' complex currents as
+// stationCov describes, and reports whether it could.
+func fitCov(res *inverse.Result, lines []phasorLine, c []float64) bool {
+	if res == nil || res.Covariance == nil || len(res.LineCurrents) == 0 {
+		return false
+	}
+	idx := make(map[string]int, len(res.ParamNames))
+	for i, name := range res.ParamNames {
+		idx[name] = i
+	}
+	if dim, _ := res.Covariance.Dims(); dim != len(res.ParamNames) {
+		return false
+	}
+	n := len(lines)
+	type at struct {
+		re, im int
+		u      complex128
+		f      float64
+	}
+	ls := make([]at, n)
+	used := map[int]bool{}
+	for k, q := range lines {
+		pk := q.phasor()
+		if !(q.i > 0) {
+			return false
+		}
+		l := -1
+		for j, cj := range res.LineCurrents {
+			if math.Abs(cmplx.Abs(cj)-q.i) <= 1e-9*q.i {
+				if l >= 0 {
+					return false // two lines of that magnitude: not told apart
+				}
+				l = j
+			}
+		}
+		if l < 0 || used[l] {
+			return false
+		}
+		used[l] = true
+		u := pk / res.LineCurrents[l]
+		if math.Abs(cmplx.Abs(u)-1) > 1e-6 {
+			return false
+		}
+		re, okRe := idx[fmt.Sprintf("line%d.current.re", l+1)]
+		im, okIm := idx[fmt.Sprintf("line%d.current.im", l+1)]
+		if !okRe || !okIm {
+			return false
+		}
+		ls[k] = at{re: re, im: im, u: u}
+	}
+	// Each line's block turned by u: [Re P, Im P] = M [Re c, Im c].
+	rot := func(u complex128) [2][2]float64 {
+		return [2][2]float64{{real(u), -imag(u)}, {imag(u), real(u)}}
+	}
+	for j := range n {
+		mj := rot(ls[j].u)
+		for k := range n {
+			mk := rot(ls[k].u)
+			ij, ik := [2]int{ls[j].re, ls[j].im}, [2]int{ls[k].re, ls[k].im}
+			for x := range 2 {
+				for y := range 2 {
+					var v float64
+					for a := range 2 {
+						for b := range 2 {
+							v += mj[x][a] * res.Covariance.At(ij[a], ik[b]) * mk[y][b]
+						}
+					}
+					c[(2*j+x)*2*n+2*k+y] = v
+				}
+			}
+		}
+	}
+	// Each line's variance (the block's trace) brought to its station's.
+	for k, q := range lines {
+		tr := c[(2*k)*2*n+2*k] + c[(2*k+1)*2*n+2*k+1]
+		want := sq(q.si) + sq(q.i*q.sp*math.Pi/180)
+		if !(tr > 0) || !(want > 0) || math.IsInf(want, 0) {
+			return false
+		}
+		ls[k].f = math.Sqrt(want / tr)
+	}
+	for j := range 2 * n {
+		for k := range 2 * n {
+			c[j*2*n+k] *= ls[j/2].f * ls[k/2].f
+		}
+	}
+	return true
 }
 
 // trackReturn is, for further conductor t carrying current back beside

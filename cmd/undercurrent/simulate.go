@@ -199,7 +199,8 @@ func span(t []float64) string {
 }
 
 // printDetectability prints each conductor's peak field at the sensors and
-// its ratio to the per-reading noise.
+// its ratio to the per-reading noise, then, for each frequency that more
+// than one conductor carries, the peak of their summed field.
 func printDetectability(w io.Writer, sc *simulate.Scenario) {
 	peaks := sc.PeakFields()
 	noise := sc.Sensor.Noise
@@ -219,6 +220,28 @@ func printDetectability(w io.Writer, sc *simulate.Scenario) {
 			fmt.Fprintf(w, "  %s (%s): %s %s nT (no noise)\n", name, c.Kind, what, plain(peaks[i]))
 		}
 		if noise > 0 && peaks[i] < 3*noise && !math.IsNaN(peaks[i]) {
+			fmt.Fprintf(w, "    below 3 times the noise in any one reading: hard to detect without many readings\n")
+		}
+	}
+	// What the sensors see of the conductors at one frequency together:
+	// the cores of one circuit cancel far more than each one's own peak
+	// says (a balanced trefoil read 16099 nT a core and 1451 nT together,
+	// found in review).
+	for _, p := range sc.PeakTotalFields() {
+		if p.Conductors < 2 {
+			continue
+		}
+		what := fmt.Sprintf("%d DC conductors and objects together: peak field", p.Conductors)
+		if p.Frequency > 0 {
+			what = fmt.Sprintf("%d conductors at %g Hz together: peak %g Hz field (RMS)", p.Conductors, p.Frequency, p.Frequency)
+		}
+		if noise > 0 {
+			fmt.Fprintf(w, "  all %s %s nT, %s times the %g nT reading noise (their fields add as the sensors see them, cancelling where currents return or phases balance)\n",
+				what, plain(p.Peak), plain(p.Peak/noise), noise)
+		} else {
+			fmt.Fprintf(w, "  all %s %s nT (no noise)\n", what, plain(p.Peak))
+		}
+		if noise > 0 && p.Peak < 3*noise && !math.IsNaN(p.Peak) {
 			fmt.Fprintf(w, "    below 3 times the noise in any one reading: hard to detect without many readings\n")
 		}
 	}

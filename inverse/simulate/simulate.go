@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"math/cmplx"
 	"math/rand/v2"
 	"runtime"
 	"strconv"
@@ -394,5 +395,82 @@ func (sc *Scenario) PeakFields() []float64 {
 	}
 	return out
 }
+
+// FrequencyPeak is the largest field at the planned readings of all the
+// conductors at one frequency together (PeakTotalFields).
+type FrequencyPeak struct {
+	// Frequency is the conductors' frequency, Hz; 0 for DC (conductors and
+	// magnetised objects).
+	Frequency float64
+	// Conductors is how many of the scenario's conductors it sums.
+	Conductors int
+	// Peak is the largest magnitude of their summed field, nT (RMS for AC:
+	// the fields added as phasors at their phases), each at its current
+	// at the reading's time.
+	Peak float64
+}
+
+// PeakTotalFields returns, for each frequency the scenario's conductors
+// carry (in the order they first appear), the largest magnitude of their
+// summed field at the planned readings: what the sensors see of them
+// together. The cores of one circuit, close together at phases 120° apart
+// (or a go and its return), cancel far more than each one's own field
+// (PeakFields) suggests: a balanced trefoil of 100 A cores at 1 m read
+// 16099 nT a core and 1451 nT together (found in review).
+func (sc *Scenario) PeakTotalFields() []FrequencyPeak {
+	srcs := sc.sources()
+	var out []FrequencyPeak
+	band := make([]int, len(srcs))
+	for i, src := range srcs {
+		f := 0.0
+		if src.ac {
+			f = src.freq
+		}
+		band[i] = -1
+		for b := range out {
+			if out[b].Frequency == f {
+				band[i] = b
+			}
+		}
+		if band[i] < 0 {
+			band[i] = len(out)
+			out = append(out, FrequencyPeak{Frequency: f})
+		}
+		out[band[i]].Conductors++
+	}
+	spans, _ := sc.spans()
+	peaks := make([][]float64, len(spans))
+	eachLine(len(spans), func(li int) {
+		peak := make([]float64, len(out))
+		sum := make([][3]complex128, len(out))
+		for k := range spans[li].n {
+			t, r := sc.reading(li, spans[li], k)
+			clear(sum)
+			for i := range srcs {
+				b := srcs[i].at(r, t)
+				turn := complex(1, 0)
+				if srcs[i].ac {
+					turn = cmplx.Rect(1, srcs[i].phase)
+				}
+				for ax := range 3 {
+					sum[band[i]][ax] += complex(b[ax], 0) * turn
+				}
+			}
+			for b, v := range sum {
+				m := math.Sqrt(sqAbs(v[0]) + sqAbs(v[1]) + sqAbs(v[2]))
+				peak[b] = math.Max(peak[b], m)
+			}
+		}
+		peaks[li] = peak
+	})
+	for _, p := range peaks {
+		for b := range out {
+			out[b].Peak = math.Max(out[b].Peak, p[b])
+		}
+	}
+	return out
+}
+
+func sqAbs(z complex128) float64 { return real(z)*real(z) + imag(z)*imag(z) }
 
 func scale(v [3]float64, k float64) [3]float64 { return [3]float64{v[0] * k, v[1] * k, v[2] * k} }
