@@ -437,8 +437,11 @@ const pageChanges = `<section id="changes">
 // HasInterval is false for a comparison of two surveys.
 func (v *compareView) HasInterval() bool { return false }
 
-var compareTemplate = template.Must(template.New("compare").Parse(strings.TrimSuffix(ComparisonHTMLHead, "\n") + `
-<head>
+// sidePageHead is compare's and trend's pages' head and the start of
+// their header (title), in the crew report's style; each page goes on with
+// its own sub-title.
+func sidePageHead() string {
+	return `<head>
 <meta charset="utf-8">
 <meta name="viewport" content="width=device-width, initial-scale=1">
 <title>{{.Title}}</title>
@@ -447,7 +450,11 @@ var compareTemplate = template.Must(template.New("compare").Parse(strings.TrimSu
 <body>
 <header>
 <h1>{{.Title}}</h1>
-<p class="sub">OLD <code>{{.C.Old}}</code> · NEW <code>{{.C.New}}</code></p>
+`
+}
+
+var compareTemplate = template.Must(template.New("compare").Parse(strings.TrimSuffix(ComparisonHTMLHead, "\n") + `
+` + sidePageHead() + `<p class="sub">OLD <code>{{.C.Old}}</code> · NEW <code>{{.C.New}}</code></p>
 </header>
 <main>
 ` + pageCautions + `

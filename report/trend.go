@@ -568,16 +568,7 @@ func WriteTrendHTML(w io.Writer, t *Trend) error {
 func twice(n int) int { return 2 * n }
 
 var trendTemplate = template.Must(template.New("trend").Funcs(template.FuncMap{"twice": twice, "add": func(a, b int) int { return a + b }}).Parse(strings.TrimSuffix(TrendHTMLHead, "\n") + `
-<head>
-<meta charset="utf-8">
-<meta name="viewport" content="width=device-width, initial-scale=1">
-<title>{{.Title}}</title>
-` + crewStyle() + `
-</head>
-<body>
-<header>
-<h1>{{.Title}}</h1>
-<p class="sub">{{len .T.Surveys}} surveys, oldest first</p>
+` + sidePageHead() + `<p class="sub">{{len .T.Surveys}} surveys, oldest first</p>
 </header>
 <main>
 ` + pageCautions + `
