@@ -27,7 +27,10 @@
 // pipeline's largest message is cut to that length, its full size in
 // Uc-Truncated. UC_DLQ keeps dead letters seven days and up to a byte
 // bound, the oldest discarded (StreamSettings.DeadLetterMaxBytes), so
-// refused data cannot fill the store.
+// refused data cannot fill the store. UC_EST and UC_ALARM keep estimates and
+// alarms for a max age (StreamSettings.EstimateMaxAge, AlarmMaxAge:
+// 400 days and ten years by default) and optionally up to a byte bound,
+// the oldest discarded, so that the histories do not fill the store.
 //
 // Message ids: PublishBatch gives a batch the id
 // asset/sensor/first/last/count/hash (BatchID), so the broker drops, for

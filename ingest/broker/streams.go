@@ -32,6 +32,20 @@ type StreamSettings struct {
 	// DataMaxAge of data shortens the raw history instead of refusing new
 	// data. 0 means no bound but the age.
 	DataMaxBytes int64
+	// EstimateMaxAge bounds how long estimates are kept (stream UC_EST,
+	// the estimate history), by the broker's clock when each was stored;
+	// 0 means DefaultEstimateMaxAge. EstimateMaxBytes bounds them in
+	// bytes; 0 means no bound but the age. Past either the oldest are
+	// discarded for new ones, so that the history shortens instead of
+	// the store filling and refusing new estimates. The broker reserves
+	// a byte bound in its store when the stream is made, and refuses one
+	// it cannot reserve (Setup then fails with a *BoundError).
+	EstimateMaxAge   time.Duration
+	EstimateMaxBytes int64
+	// AlarmMaxAge and AlarmMaxBytes are the same for the alarms (stream
+	// UC_ALARM); AlarmMaxAge 0 means DefaultAlarmMaxAge.
+	AlarmMaxAge   time.Duration
+	AlarmMaxBytes int64
 	// DeadLetterMaxBytes bounds the dead letters kept (stream UC_DLQ),
 	// bytes: past it the oldest are discarded for new ones, so that refused
 	// data (a gateway sending late or malformed batches, a log replayed
@@ -74,6 +88,17 @@ type StreamSettings struct {
 	Notify func(msg string)
 }
 
+// DefaultEstimateMaxAge is how long estimates are kept when
+// StreamSettings gives no EstimateMaxAge: 400 days, a year and a season
+// to compare against, about 2.5 GB for a four-sensor DC asset with 10 s
+// windows (some 720 bytes an estimate). DefaultAlarmMaxAge is the
+// alarms': ten years, since they are few (a handful a day for such an
+// asset) and are the record of what happened to the asset.
+const (
+	DefaultEstimateMaxAge = 400 * 24 * time.Hour
+	DefaultAlarmMaxAge    = 10 * 365 * 24 * time.Hour
+)
+
 // DefaultDeadLetterMaxBytes is the dead-letter stream's bound when
 // StreamSettings gives none (256 MiB), MinDeadLetterMaxBytes the least a
 // default bound is cut to on a store that cannot reserve it (4 MiB: four
@@ -105,6 +130,12 @@ func Setup(ctx context.Context, js jetstream.JetStream, set StreamSettings) (*St
 	if set.Duplicates == 0 {
 		set.Duplicates = time.Hour
 	}
+	if set.EstimateMaxAge == 0 {
+		set.EstimateMaxAge = DefaultEstimateMaxAge
+	}
+	if set.AlarmMaxAge == 0 {
+		set.AlarmMaxAge = DefaultAlarmMaxAge
+	}
 	if set.LeaseTTL == 0 {
 		set.LeaseTTL = 5 * time.Second
 	}
@@ -114,8 +145,13 @@ func Setup(ctx context.Context, js jetstream.JetStream, set StreamSettings) (*St
 	}
 	streams := []jetstream.StreamConfig{
 		{Name: StreamData, Subjects: []string{DataPrefix + ".>"}, MaxAge: set.DataMaxAge, MaxBytes: set.DataMaxBytes, Discard: jetstream.DiscardOld, Duplicates: 2 * time.Minute},
-		{Name: StreamEstimates, Subjects: []string{EstimatePrefix + ".>"}, Duplicates: set.Duplicates},
-		{Name: StreamAlarms, Subjects: []string{AlarmPrefix + ".>"}, Duplicates: set.Duplicates},
+		// The estimate and alarm histories were kept without bound (review
+		// rv29a, finding 6: 6.2 MB a day for one asset, until the store
+		// was full and refused new estimates); a stream made so is given
+		// its bounds by this update. nats-server refuses a duplicate
+		// window longer than the max age.
+		{Name: StreamEstimates, Subjects: []string{EstimatePrefix + ".>"}, Duplicates: min(set.Duplicates, set.EstimateMaxAge), MaxAge: set.EstimateMaxAge, MaxBytes: set.EstimateMaxBytes, Discard: jetstream.DiscardOld},
+		{Name: StreamAlarms, Subjects: []string{AlarmPrefix + ".>"}, Duplicates: min(set.Duplicates, set.AlarmMaxAge), MaxAge: set.AlarmMaxAge, MaxBytes: set.AlarmMaxBytes, Discard: jetstream.DiscardOld},
 		{Name: StreamDeadLetter, Subjects: []string{DeadLetterPrefix + ".>"}, Duplicates: set.Duplicates, MaxAge: DeadLetterMaxAge, MaxBytes: set.DeadLetterMaxBytes, Discard: jetstream.DiscardOld},
 	}
 	st := &Stores{JS: js, LeaseTTL: set.LeaseTTL}

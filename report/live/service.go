@@ -278,6 +278,8 @@ func (s *Service) Run(ctx context.Context) error {
 	sctx, cancel := context.WithTimeout(ctx, 30*time.Second)
 	s.stores, err = broker.Setup(sctx, js, broker.StreamSettings{
 		Replicas: s.site.Broker.Replicas, DataMaxAge: s.site.Broker.DataRetention.Duration, DataMaxBytes: s.site.Broker.DataMaxBytes,
+		EstimateMaxAge: s.site.Broker.EstimateRetention.Duration, EstimateMaxBytes: s.site.Broker.EstimateMaxBytes,
+		AlarmMaxAge: s.site.Broker.AlarmRetention.Duration, AlarmMaxBytes: s.site.Broker.AlarmMaxBytes,
 		DeadLetterMaxBytes: s.site.Broker.DLQMaxBytes, DeadLetterDefault: s.site.dlqDefault(), DeadLetterMin: s.site.dlqMin(),
 		LeaseTTL: s.site.Service.LeaseTTL.Duration, Memory: s.memory, StoreBytes: s.storeBytes,
 		Notify: func(msg string) { s.log.Info(msg, "stream", broker.StreamDeadLetter) }})
@@ -775,6 +777,10 @@ func (s *Site) boundAdvice(err error, external bool) string {
 			return fmt.Sprintf("; broker.dlq_max_bytes cannot be less than %d (four times service.max_message_bytes): lower broker.data_max_bytes, or give the broker's servers more JetStream storage (max_file_store in the nats-server configuration)", s.dlqMin())
 		case broker.StreamData:
 			return "; lower broker.data_max_bytes, or give the broker's servers more JetStream storage (max_file_store in the nats-server configuration)"
+		case broker.StreamEstimates:
+			return "; lower broker.estimate_max_bytes, or give the broker's servers more JetStream storage (max_file_store in the nats-server configuration)"
+		case broker.StreamAlarms:
+			return "; lower broker.alarm_max_bytes, or give the broker's servers more JetStream storage (max_file_store in the nats-server configuration)"
 		}
 		return ""
 	}
@@ -786,6 +792,10 @@ func (s *Site) boundAdvice(err error, external bool) string {
 		return fmt.Sprintf("; broker.dlq_max_bytes cannot be less than %d (four times service.max_message_bytes): lower broker.data_max_bytes, or raise broker.store_max_bytes", s.dlqMin())
 	case broker.StreamData:
 		return "; lower broker.data_max_bytes, or raise broker.store_max_bytes"
+	case broker.StreamEstimates:
+		return "; lower broker.estimate_max_bytes or broker.data_max_bytes, or raise broker.store_max_bytes"
+	case broker.StreamAlarms:
+		return "; lower broker.alarm_max_bytes or broker.data_max_bytes, or raise broker.store_max_bytes"
 	}
 	return ""
 }
@@ -820,7 +830,7 @@ func (s *Site) dlqReplacedWarning(r *broker.DeadLetterReplaced, now int64) strin
 // after a restart.
 const storeFullAdvice = "the broker's store is full: no lease, estimate or sensor batch can be stored until space is freed. " +
 	"Free disk space (the embedded broker without broker.store_max_bytes takes it up within 15 s), " +
-	"or raise broker.store_max_bytes, or lower broker.data_retention, broker.data_max_bytes or broker.dlq_max_bytes, and restart serve " +
+	"or raise broker.store_max_bytes, or lower broker.data_retention, broker.data_max_bytes, broker.dlq_max_bytes, broker.estimate_retention or broker.estimate_max_bytes, and restart serve " +
 	"(a cluster's own limits are in the nats-server configuration)"
 
 // storeFailedAdvice is the ERROR logged once when the embedded broker's

@@ -94,3 +94,66 @@ func TestWholeAssetSilenceAlarm(t *testing.T) {
 	}
 	r.stop(t)
 }
+
+// Review rv29a, finding 8: the asset's silent alarm had no cleared
+// record when data came again, unlike a sensor's silence or an
+// over-current. The first window published after the silence carries
+// one, once: cleared, no subject, since the onset window's start, and
+// windows counting those from the onset's to it, which had no data.
+func TestWholeAssetSilenceCleared(t *testing.T) {
+	h := newHarness(t)
+	site := testSite(t, strings.Replace(testSiteText, `idle = "400ms"`, "idle = \"400ms\"\nsilent_after = \"1s\"", 1))
+	r := h.start(site, "w1")
+	h.publish(0, 1) // windows 0, 1
+	var alarms []Alarm
+	read := func() {
+		alarms = alarms[:0]
+		ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
+		defer cancel()
+		err := scan(ctx, h.js, broker.StreamAlarms, broker.AlarmSubject("fenwick-lane", AlarmSilent), func(d []byte) bool {
+			var a Alarm
+			if err := json.Unmarshal(d, &a); err != nil {
+				t.Fatal(err)
+			}
+			alarms = append(alarms, a)
+			return true
+		})
+		if err != nil {
+			t.Fatal(err)
+		}
+	}
+	waitFor(t, 30*time.Second, "the asset's silent alarm", func() bool { read(); return len(alarms) > 0 })
+	for _, a := range alarms {
+		if a.Cleared {
+			t.Fatalf("cleared before data came again: %+v", alarms)
+		}
+	}
+	h.publish(2, 2) // windows 4 to 7: one cleared record, in window 4
+	waitFor(t, 30*time.Second, "the estimate of window 7", func() bool {
+		ests := h.estimates()
+		return len(ests) > 0 && ests[len(ests)-1].Start == t0+3.5
+	})
+	read()
+	k0 := int64(math.Floor(t0/0.5 + 1e-7))
+	// A silence after window 7 (1 s after the last data, by the wall
+	// clock) would be alarmed in window 8: not this test's.
+	kept := alarms[:0]
+	for _, a := range alarms {
+		if a.Window <= k0+7 {
+			kept = append(kept, a)
+		}
+	}
+	alarms = kept
+	if len(alarms) != 2 {
+		t.Fatalf("%d silent alarms of the asset, want the onset and one cleared record: %+v", len(alarms), alarms)
+	}
+	on, off := alarms[0], alarms[1]
+	if on.Cleared || on.Window != k0+2 {
+		t.Errorf("onset %+v, want window %d not cleared", on, k0+2)
+	}
+	if !off.Cleared || off.Subject != "" || off.Window != k0+4 || off.Since != on.Start || off.Windows != 2 || off.Threshold != 1 ||
+		!strings.Contains(off.Message, "again") {
+		t.Errorf("cleared record %+v, want window %d with no subject, since %v, 2 windows, threshold 1", off, k0+4, on.Start)
+	}
+	r.stop(t)
+}

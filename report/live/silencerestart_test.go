@@ -23,8 +23,12 @@ func TestSilentAlarmOncePerSilenceAcrossRestarts(t *testing.T) {
 	}
 	h := newHarness(t)
 	site := testSite(t, strings.Replace(testSiteText, `idle = "400ms"`, "idle = \"400ms\"\nsilent_after = \"1s\"", 1))
+	// alarms are the onsets; cleared counts the cleared records (data
+	// ending a silence clears its alarm, review rv29a finding 8).
+	cleared := 0
 	alarms := func() []Alarm {
 		var out []Alarm
+		cleared = 0
 		ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
 		defer cancel()
 		err := scan(ctx, h.js, broker.StreamAlarms, broker.AlarmSubject("fenwick-lane", AlarmSilent), func(d []byte) bool {
@@ -32,7 +36,11 @@ func TestSilentAlarmOncePerSilenceAcrossRestarts(t *testing.T) {
 			if err := json.Unmarshal(d, &a); err != nil {
 				t.Fatal(err)
 			}
-			out = append(out, a)
+			if a.Cleared {
+				cleared++
+			} else {
+				out = append(out, a)
+			}
 			return true
 		})
 		if err != nil {
@@ -58,8 +66,8 @@ func TestSilentAlarmOncePerSilenceAcrossRestarts(t *testing.T) {
 		time.Sleep(3 * site.Service.SilentAfter.Duration) // past silent_after again: still one alarm
 		r.stop(t)
 	}
-	if as := alarms(); len(as) != 1 {
-		t.Fatalf("%d silent alarms for one silence across a restart and a takeover, want 1: %+v", len(as), as)
+	if as := alarms(); len(as) != 1 || cleared != 0 {
+		t.Fatalf("%d silent alarms and %d cleared records for one silence across a restart and a takeover, want 1 and 0: %+v", len(as), cleared, as)
 	}
 
 	// Data ends the silence; the next one is dated from that data's
@@ -71,8 +79,8 @@ func TestSilentAlarmOncePerSilenceAcrossRestarts(t *testing.T) {
 	stored := time.Now()
 	waitFor(t, 30*time.Second, "the data's windows", func() bool { return len(h.estimates()) >= 2 })
 	r.stop(t)
-	if as := alarms(); len(as) != 1 {
-		t.Fatalf("%d silent alarms before the second silence lasted silent_after, want 1", len(as))
+	if as := alarms(); len(as) != 1 || cleared != 1 {
+		t.Fatalf("%d silent alarms and %d cleared records before the second silence lasted silent_after, want 1 and 1 (the data cleared the first)", len(as), cleared)
 	}
 	time.Sleep(2500 * time.Millisecond) // the new worker starts well after the data
 	r = h.start(site3, "w2")

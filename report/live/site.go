@@ -89,6 +89,19 @@ type BrokerConfig struct {
 	// DataMaxBytes bounds the raw sensor batches kept, bytes: past it the
 	// oldest give way to new ones. 0 means no bound but data_retention.
 	DataMaxBytes int64 `toml:"data_max_bytes"`
+	// EstimateRetention bounds how long estimates are kept (stream UC_EST,
+	// the history queries read), by the broker's clock when each was
+	// stored; 0 means 400 days (broker.DefaultEstimateMaxAge).
+	// EstimateMaxBytes bounds them in bytes, reserved in the store like
+	// data_max_bytes; 0 means no bound but the age. Past either the
+	// oldest estimates give way to new ones.
+	EstimateRetention Duration `toml:"estimate_retention"`
+	EstimateMaxBytes  int64    `toml:"estimate_max_bytes"`
+	// AlarmRetention and AlarmMaxBytes are the same for the alarms
+	// (stream UC_ALARM); AlarmRetention 0 means ten years
+	// (broker.DefaultAlarmMaxAge).
+	AlarmRetention Duration `toml:"alarm_retention"`
+	AlarmMaxBytes  int64    `toml:"alarm_max_bytes"`
 	// DLQMaxBytes bounds the dead letters kept (refused messages, stream
 	// UC_DLQ, seven days at most), bytes: past it the oldest give way.
 	// The broker reserves it in its store, and serve stops at start when
@@ -590,6 +603,24 @@ func (s *Site) validate() error {
 	}
 	if s.Broker.DataMaxBytes < 0 {
 		return keyErrorf("broker.data_max_bytes", "broker.data_max_bytes %d: want 0 (no bound) or more", s.Broker.DataMaxBytes)
+	}
+	for _, r := range []struct {
+		key string
+		v   time.Duration
+	}{{"estimate_retention", s.Broker.EstimateRetention.Duration}, {"alarm_retention", s.Broker.AlarmRetention.Duration}} {
+		// Under the broker's duplicate window (1 h) a takeover's repeat
+		// of an estimate or alarm would no longer be recognised.
+		if r.v != 0 && r.v < time.Hour {
+			return keyErrorf("broker."+r.key, "broker.%s %v: want at least 1h (the window in which the broker recognises a repeated estimate or alarm), or 0 for the default", r.key, r.v)
+		}
+	}
+	for _, b := range []struct {
+		key string
+		v   int64
+	}{{"estimate_max_bytes", s.Broker.EstimateMaxBytes}, {"alarm_max_bytes", s.Broker.AlarmMaxBytes}} {
+		if b.v != 0 && b.v < 1<<20 {
+			return keyErrorf("broker."+b.key, "broker.%s %d: want 0 (no bound but the age) or at least 1048576 (1 MiB)", b.key, b.v)
+		}
 	}
 	if s.Broker.StoreMaxBytes < 0 {
 		return keyErrorf("broker.store_max_bytes", "broker.store_max_bytes %d: want 0 (the server's default) or more", s.Broker.StoreMaxBytes)

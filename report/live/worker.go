@@ -52,6 +52,10 @@ type checkpoint struct {
 	// if this worker stops before.
 	DataLost   string  `json:"data_lost,omitempty"`
 	DataLostAt float64 `json:"data_lost_at,omitempty"`
+	// SilentOpen is the asset's silent alarm raised and not yet cleared:
+	// the first window published after data comes again carries its
+	// cleared record (see clearSilence), also for a successor.
+	SilentOpen *openSilence `json:"silent_open,omitempty"`
 	// SilentEarly is the asset's silent alarm raised before its first
 	// published window (see checkSilence), until that window is published.
 	SilentEarly *earlySilence `json:"silent_early,omitempty"`
@@ -66,6 +70,15 @@ type checkpoint struct {
 // first published window, and where it was stored: the first window may
 // turn out to start before it (data with earlier sensor times), and the
 // alarm is then moved to that window (see placeEarlySilence).
+// openSilence is the asset's silent alarm in the checkpoint until its
+// cleared record is published: the window it is stored in and that
+// window's start, and the silence's start as in its message.
+type openSilence struct {
+	Window int64   `json:"window"`
+	Start  float64 `json:"start"`
+	Since  string  `json:"since"`
+}
+
 type earlySilence struct {
 	Alarm Alarm  `json:"alarm"`
 	Seq   uint64 `json:"seq"`   // its UC_ALARM sequence
@@ -863,6 +876,7 @@ func (w *assetWorker) checkSilence(now time.Time) error {
 	if early {
 		w.ck.SilentEarly = &earlySilence{Alarm: al, Seq: ack.Sequence, Since: since}
 	}
+	w.ck.SilentOpen = &openSilence{Window: al.Window, Start: al.Start, Since: since}
 	w.ck.SilentSince = w.lastData.UTC().Format(time.RFC3339Nano)
 	return w.saveCheckpoint()
 }
@@ -912,6 +926,9 @@ func (w *assetWorker) placeEarlySilence(win *window) error {
 		if _, err := w.publishAlarmAck(al, w.msgID(win.Index)+"/"+al.Kind+"/"+es.Since, false); err != nil {
 			return err
 		}
+		if so := w.ck.SilentOpen; so != nil && so.Since == es.Since {
+			so.Window, so.Start = al.Window, al.Start
+		}
 		if err := w.fenced(); err != nil {
 			return err
 		}
@@ -926,6 +943,24 @@ func (w *assetWorker) placeEarlySilence(win *window) error {
 	}
 	w.ck.SilentEarly = nil
 	return nil
+}
+
+// clearSilence appends to window win's alarms the cleared record of the
+// asset's silent alarm (SilentOpen) once data has come again (review
+// rv29a, finding 8: the alarm was never cleared, unlike a sensor's
+// silence), in the first window published from the alarm's own on; once
+// it is stored the checkpoint written with the window forgets the alarm.
+// Windows counts
+// the windows from the alarm's to this one, which had no data.
+func (w *assetWorker) clearSilence(win *window, alarms []Alarm) []Alarm {
+	so := w.ck.SilentOpen
+	if so == nil || w.silent || win.Index < so.Window {
+		return alarms
+	}
+	al := w.proc.alarm(win, AlarmSilent, "", 0, w.svc.site.Service.SilentAfter.Seconds(),
+		fmt.Sprintf("data from asset %s again: the silence since %s has ended", w.asset.Name, so.Since))
+	al.Cleared, al.Since, al.Windows = true, so.Start, int(win.Index-so.Window)
+	return append(alarms, al)
 }
 
 // deleteAlarm deletes message seq of the alarm stream.
@@ -1327,6 +1362,7 @@ func (w *assetWorker) publishWindow(win *window, r *reduced) error {
 	if err := w.placeEarlySilence(win); err != nil {
 		return err
 	}
+	alarms = w.clearSilence(win, alarms)
 	id := w.msgID(win.Index)
 	ack, err := w.svc.publishFenced(w.fenced, w.message(broker.EstimateSubject(w.asset.Name), data), id)
 	if err != nil {
@@ -1340,6 +1376,9 @@ func (w *assetWorker) publishWindow(win *window, r *reduced) error {
 	for _, al := range alarms {
 		if err := w.publishAlarm(al, alarmID(id, al)); err != nil {
 			return err
+		}
+		if al.Kind == AlarmSilent && al.Subject == "" && al.Cleared {
+			w.ck.SilentOpen = nil
 		}
 	}
 	if err := w.fenced(); err != nil {
