@@ -275,10 +275,14 @@ func (d *Document) polyphaseSet() (a, b int, ok bool) {
 // stations' own sigmas were combined as if independent, and the residual
 // of 200/150/120 A cores read 70.00 ± 2.9 A (± 10-12 A in trefoil) where
 // seeds scattered by 0.005 A, and no phase was given (found in review).
-// The groups' values are averaged with inverse-variance weights and
-// widened by the Birge ratio (birgeMean); the phase is given only where
-// the residual lies three sigmas or more from zero. ok is false where no
-// group has all three, or conductor 1 is a pair read as its net.
+// The groups' residual phasors, each referred to conductor 1's phase at
+// its group, are averaged with inverse-covariance weights and the
+// magnitude and phase taken of the mean (phasorSumOf); before, the
+// groups' magnitudes were averaged, each biased up near zero, and a
+// balanced set read 0.0137 ± 0.0033 A for 0 (found in review). The phase
+// is given only where the residual lies three sigmas or more from zero.
+// ok is false where no group has all three, or conductor 1 is a pair read
+// as its net.
 func polyphaseResidual(d *Document, fits map[string]*inverse.Result, ta, tb *Track) (ps phasorSumResult, ok bool) {
 	return phasorSumOf(d, fits, ta, tb)
 }
@@ -296,7 +300,7 @@ type phasorSumResult struct {
 // and further conductors ts' currents, |I1 + ΣIk|, A, and its sigma, as
 // phasorSumOf gives it without the fits' covariances: first order in the
 // stations' current and phase sigmas with their correlations in the fit
-// left out, Birge-widened inverse-variance mean.
+// left out, the magnitude of the stations' Birge-widened mean phasor.
 func phasorSum(d *Document, ts ...*Track) (res, sigma float64, ok bool) {
 	ps, ok := phasorSumOf(d, nil, ts...)
 	return ps.Res, ps.Sigma, ok
@@ -304,12 +308,18 @@ func phasorSum(d *Document, ts ...*Track) (res, sigma float64, ok bool) {
 
 // phasorSumOf is the phasor sum of conductor 1's current and further
 // conductors ts' currents over the groups where all were used with
-// phases, each read along conductor 1's direction: its magnitude and its
-// phase from conductor 1's, each group's with first-order sigmas from the
-// covariance of the lines' complex currents (stationCov: the group's fit's
-// where fits has it and its lines are found there, else the stations' own
-// sigmas taken as independent), averaged with inverse-variance weights
-// and widened by the Birge ratio when the groups scatter beyond them.
+// phases, each read along conductor 1's direction: each group's sum
+// referred to conductor 1's phase there, with its 2 x 2 covariance, first
+// order, from the covariance of the lines' complex currents (stationCov:
+// the group's fit's where fits has it and its lines are found there, else
+// the stations' own sigmas taken as independent); the groups' phasors
+// averaged with inverse-covariance weights; and the mean's magnitude and
+// its phase from conductor 1's, each sigma widened by its own Birge ratio
+// when the groups scatter beyond their sigmas along the mean or across
+// it. Averaging the phasors, not their magnitudes, leaves a sum near zero
+// unbiased to within its own sigma: a magnitude's mean is about 1.25 of
+// its sigma, which an average of magnitudes keeps while its sigma falls
+// by the root of the groups' count.
 func phasorSumOf(d *Document, fits map[string]*inverse.Result, ts ...*Track) (out phasorSumResult, ok bool) {
 	if d.Route == nil || d.Route.PairNet {
 		return out, false
