@@ -816,9 +816,11 @@ type Track struct {
 	// phases from conductor 1 lie near +120° and -120° (polyphaseSet), the
 	// numbers of the three conductors, as the phases of one three-phase
 	// circuit, and PolyphaseResidualA the magnitude of their phasor sum,
-	// A, with its one-sigma: the circuit's residual, what returns by a
-	// neutral, earth or conductors outside the survey, if the three are
-	// one circuit (separate circuits on those phases look the same).
+	// A (of the groups' sums' mean, each referred to conductor 1's phase
+	// at its group), with its one-sigma: the circuit's residual, what
+	// returns by a neutral, earth or conductors outside the survey, if the
+	// three are one circuit (separate circuits on those phases look the
+	// same).
 	// Members of such a set get no ReturnShare. Nil otherwise.
 	PolyphaseSet            []int    `json:"polyphase_set,omitempty"`
 	PolyphaseResidualA      *float64 `json:"polyphase_residual_a,omitempty"`

@@ -275,10 +275,14 @@ func (d *Document) polyphaseSet() (a, b int, ok bool) {
 // stations' own sigmas were combined as if independent, and the residual
 // of 200/150/120 A cores read 70.00 ± 2.9 A (± 10-12 A in trefoil) where
 // seeds scattered by 0.005 A, and no phase was given (found in review).
-// The groups' values are averaged with inverse-variance weights and
-// widened by the Birge ratio (birgeMean); the phase is given only where
-// the residual lies three sigmas or more from zero. ok is false where no
-// group has all three, or conductor 1 is a pair read as its net.
+// The groups' residual phasors, each referred to conductor 1's phase at
+// its group, are averaged with inverse-covariance weights and the
+// magnitude and phase taken of the mean (phasorSumOf); before, the
+// groups' magnitudes were averaged, each biased up near zero, and a
+// balanced set read 0.0137 ± 0.0033 A for 0 (found in review). The phase
+// is given only where the residual lies three sigmas or more from zero.
+// ok is false where no group has all three, or conductor 1 is a pair read
+// as its net.
 func polyphaseResidual(d *Document, fits map[string]*inverse.Result, ta, tb *Track) (ps phasorSumResult, ok bool) {
 	return phasorSumOf(d, fits, ta, tb)
 }
@@ -296,7 +300,7 @@ type phasorSumResult struct {
 // and further conductors ts' currents, |I1 + ΣIk|, A, and its sigma, as
 // phasorSumOf gives it without the fits' covariances: first order in the
 // stations' current and phase sigmas with their correlations in the fit
-// left out, Birge-widened inverse-variance mean.
+// left out, the magnitude of the stations' Birge-widened mean phasor.
 func phasorSum(d *Document, ts ...*Track) (res, sigma float64, ok bool) {
 	ps, ok := phasorSumOf(d, nil, ts...)
 	return ps.Res, ps.Sigma, ok
@@ -304,12 +308,18 @@ func phasorSum(d *Document, ts ...*Track) (res, sigma float64, ok bool) {
 
 // phasorSumOf is the phasor sum of conductor 1's current and further
 // conductors ts' currents over the groups where all were used with
-// phases, each read along conductor 1's direction: its magnitude and its
-// phase from conductor 1's, each group's with first-order sigmas from the
-// covariance of the lines' complex currents (stationCov: the group's fit's
-// where fits has it and its lines are found there, else the stations' own
-// sigmas taken as independent), averaged with inverse-variance weights
-// and widened by the Birge ratio when the groups scatter beyond them.
+// phases, each read along conductor 1's direction: each group's sum
+// referred to conductor 1's phase there, with its 2 x 2 covariance, first
+// order, from the covariance of the lines' complex currents (stationCov:
+// the group's fit's where fits has it and its lines are found there, else
+// the stations' own sigmas taken as independent); the groups' phasors
+// averaged with inverse-covariance weights; and the mean's magnitude and
+// its phase from conductor 1's, each sigma widened by its own Birge ratio
+// when the groups scatter beyond their sigmas along the mean or across
+// it. Averaging the phasors, not their magnitudes, leaves a sum near zero
+// unbiased to within its own sigma: a magnitude's mean is about 1.25 of
+// its sigma, which an average of magnitudes keeps while its sigma falls
+// by the root of the groups' count.
 func phasorSumOf(d *Document, fits map[string]*inverse.Result, ts ...*Track) (out phasorSumResult, ok bool) {
 	if d.Route == nil || d.Route.PairNet {
 		return out, false
@@ -333,7 +343,8 @@ func phasorSumOf(d *Document, fits map[string]*inverse.Result, ts ...*Track) (ou
 	for k, t := range ts {
 		others[k] = at(t)
 	}
-	var rs, ws, phs, pws []float64
+	var zs []complex128
+	var cs [][2][2]float64
 	for _, m := range d.Route.Stations {
 		if _, found := main[m.Key]; !found {
 			continue
@@ -362,52 +373,105 @@ func phasorSumOf(d *Document, fits map[string]*inverse.Result, ts ...*Track) (ou
 		for _, q := range lines {
 			sum += q.phasor()
 		}
-		r := cmplx.Abs(sum)
-		var v float64
-		if r > 0 {
-			// d|S| = g·dS, g the unit vector along S, for every line.
-			g := [2]float64{real(sum) / r, imag(sum) / r}
-			v = quadForm(c, len(lines), func(k int) [2]float64 { return g })
-		} else {
-			for _, q := range lines {
-				v += sq(q.si)
-			}
-		}
-		if !(v > 0) || math.IsInf(v, 0) {
+		p1 := lines[0].phasor()
+		a1 := cmplx.Abs(p1)
+		if !(a1 > 0) {
 			continue
 		}
-		rs, ws = append(rs, r), append(ws, 1/v)
-		p1 := lines[0].phasor()
-		if r > 0 && cmplx.Abs(p1) > 0 {
-			// d(arg S - arg I1): h/|S| for every line, less h1/|I1| for
-			// conductor 1's, h the unit vector square to each.
-			h := [2]float64{-imag(sum) / r / r, real(sum) / r / r}
-			a1 := cmplx.Abs(p1)
-			h1 := [2]float64{-imag(p1) / a1 / a1, real(p1) / a1 / a1}
-			vp := quadForm(c, len(lines), func(k int) [2]float64 {
-				if k == 0 {
-					return [2]float64{h[0] - h1[0], h[1] - h1[1]}
-				}
-				return h
-			})
-			ph := wrapDeg((cmplx.Phase(sum) - cmplx.Phase(p1)) * 180 / math.Pi)
-			if len(phs) > 0 {
-				ph = phs[0] + wrapDeg(ph-phs[0])
+		// z = S e^{-iφ1}: the sum referred to conductor 1's phase here,
+		// since the absolute phase turns along the route when the grid's
+		// frequency is off the one demodulated. dz = e^{-iφ1} dS - i z dφ1,
+		// dφ1 = h1·dI1, h1 square to I1 over |I1|: every line's (re, im)
+		// turned by -φ1, and conductor 1's also through its phase.
+		u := cmplx.Conj(p1) / complex(a1, 0)
+		z := sum * u
+		rot := [2][2]float64{{real(u), -imag(u)}, {imag(u), real(u)}}
+		h1 := [2]float64{-imag(p1) / a1 / a1, real(p1) / a1 / a1}
+		v := [2]float64{imag(z), -real(z)}
+		cz := jacForm(c, len(lines), func(k int) [2][2]float64 {
+			if k > 0 {
+				return rot
 			}
-			if sp := math.Sqrt(vp) * 180 / math.Pi; sp > 0 && !math.IsInf(sp, 0) {
-				phs, pws = append(phs, ph), append(pws, 1/(sp*sp))
+			var j [2][2]float64
+			for x := range 2 {
+				for y := range 2 {
+					j[x][y] = rot[x][y] + v[x]*h1[y]
+				}
+			}
+			return j
+		})
+		if _, ok := inv2(cz); !ok {
+			continue
+		}
+		zs, cs = append(zs, z), append(cs, cz)
+	}
+	if len(zs) == 0 {
+		return out, false
+	}
+	// The phasors' mean, each weighted by its inverse covariance.
+	var w [2][2]float64
+	var wz [2]float64
+	for g, z := range zs {
+		wg, _ := inv2(cs[g])
+		for x := range 2 {
+			wz[x] += wg[x][0]*real(z) + wg[x][1]*imag(z)
+			for y := range 2 {
+				w[x][y] += wg[x][y]
 			}
 		}
 	}
-	if len(rs) == 0 {
+	cm, ok := inv2(w)
+	if !ok {
 		return out, false
 	}
-	out.Res, out.Sigma = birgeMean(rs, ws)
-	if len(phs) > 0 && out.Res >= 3*out.Sigma {
-		p, sp := birgeMean(phs, pws)
-		out.Phase, out.PhaseSigma, out.PhaseOK = wrapDeg(p), sp, true
+	mean := complex(cm[0][0]*wz[0]+cm[0][1]*wz[1], cm[1][0]*wz[0]+cm[1][1]*wz[1])
+	r := cmplx.Abs(mean)
+	// Its magnitude's sigma along the mean (g) and its phase's across it
+	// (h), each widened by its own Birge ratio where the stations scatter
+	// beyond their sigmas that way (conductor 1's phase, poorly fixed in
+	// trefoil, may scatter the phasors across more than along).
+	g := [2]float64{1, 0}
+	if r > 0 {
+		g = [2]float64{real(mean) / r, imag(mean) / r}
+	}
+	h := [2]float64{-g[1], g[0]}
+	along := func(e [2]float64) float64 {
+		vr := form2(cm, e)
+		if n := len(zs); n > 1 {
+			var chi2 float64
+			for k, z := range zs {
+				d := (real(z)-real(mean))*e[0] + (imag(z)-imag(mean))*e[1]
+				chi2 += d * d / form2(cs[k], e)
+			}
+			if b := chi2 / float64(n-1); b > 1 {
+				vr *= b
+			}
+		}
+		return vr
+	}
+	out.Res, out.Sigma = r, math.Sqrt(along(g))
+	if r > 0 && out.Res >= 3*out.Sigma {
+		sp := math.Sqrt(along(h)) / r * 180 / math.Pi
+		if sp > 0 && !math.IsInf(sp, 0) {
+			out.Phase, out.PhaseSigma, out.PhaseOK = cmplx.Phase(mean)*180/math.Pi, sp, true
+		}
 	}
 	return out, true
+}
+
+// inv2 is the inverse of the 2 x 2 covariance c, and whether it has one
+// (positive definite, finite).
+func inv2(c [2][2]float64) (w [2][2]float64, ok bool) {
+	det := c[0][0]*c[1][1] - c[0][1]*c[1][0]
+	if !(det > 0) || math.IsInf(det, 0) || !(c[0][0] > 0) {
+		return w, false
+	}
+	return [2][2]float64{{c[1][1] / det, -c[0][1] / det}, {-c[1][0] / det, c[0][0] / det}}, true
+}
+
+// form2 is e' c e for the 2 x 2 covariance c.
+func form2(c [2][2]float64, e [2]float64) float64 {
+	return e[0]*(c[0][0]*e[0]+c[0][1]*e[1]) + e[1]*(c[1][0]*e[0]+c[1][1]*e[1])
 }
 
 // phasorLine is one line's current at a station, read along conductor
@@ -417,22 +481,27 @@ type phasorLine struct{ i, si, p, sp float64 }
 
 func (q phasorLine) phasor() complex128 { return cmplx.Rect(q.i, q.p*math.Pi/180) }
 
-// quadForm is Σ_jk a_j' C_jk a_k for the 2n x 2n covariance c of n lines'
-// (real, imaginary) parts and the gradient a(k) of each line's.
-func quadForm(c []float64, n int, a func(k int) [2]float64) float64 {
-	var v float64
+// jacForm is Σ_jk J_j C_jk J_k' for the 2n x 2n covariance c of n lines'
+// (real, imaginary) parts and the 2 x 2 Jacobian J(k) of a phasor in each
+// line's: that phasor's covariance.
+func jacForm(c []float64, n int, jac func(k int) [2][2]float64) (out [2][2]float64) {
 	for j := range n {
-		aj := a(j)
+		jj := jac(j)
 		for k := range n {
-			ak := a(k)
+			jk := jac(k)
 			for x := range 2 {
 				for y := range 2 {
-					v += aj[x] * c[(2*j+x)*2*n+2*k+y] * ak[y]
+					cxy := c[(2*j+x)*2*n+2*k+y]
+					for a := range 2 {
+						for b := range 2 {
+							out[a][b] += jj[a][x] * cxy * jk[b][y]
+						}
+					}
 				}
 			}
 		}
 	}
-	return v
+	return out
 }
 
 // stationCov is the 2n x 2n covariance (row-major) of the n lines' complex
