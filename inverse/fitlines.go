@@ -1358,6 +1358,18 @@ func (f *fitter) fitK(k int, prev *candidate) (*candidate, error) {
 			}
 		}
 	}
+	if gs := f.givenStarts(k, best); len(gs) > 0 {
+		// The caller's starts of k lines (Settings.Starts): over an
+		// unbalanced trefoil (200, 150 and 120 A, 0.1 m cores 0.74 m down)
+		// every start of three lines on about one traverse in seven ended
+		// in a worse minimum (a 43 A line 0.49 m down with weak lines
+		// beside it, 3 times the noise), where the three cores the
+		// neighbouring traverses' fits give fit to the noise
+		// (cmd/undercurrent TestLocateTrefoilNeighbourSeeded).
+		if v, err := f.bestOf(gs, false); err == nil && v.rss < best.rss && !collapsed(v.sp, v.x) {
+			best = v
+		}
+	}
 	c, err := f.finish(k, best)
 	if err != nil || k <= 2 || f.rough || prev == nil {
 		return c, err
@@ -1417,6 +1429,45 @@ func (f *fitter) fitK(k int, prev *candidate) (*candidate, error) {
 		}
 	}
 	return c, nil
+}
+
+// givenStarts turns the caller's starts of k lines (Settings.Starts) into
+// starts: each line moved along itself to where it passes nearest the
+// readings' centroid in plan, its angles held as the fit's own starts hold
+// them (a single traverse: perpendicular and level, released by finish), with
+// the dipoles of best, the fit of k lines so far.
+func (f *fitter) givenStarts(k int, best *candidate) []start {
+	holdAz, holdDip, haz, hdip := f.holds()
+	var out []start
+	for _, set := range f.set.Starts {
+		if len(set) != k {
+			continue
+		}
+		st := start{lines: make([]lineGeom, 0, k)}
+		if best != nil {
+			st.dips = append([]dipGeom(nil), best.sp.dips...)
+		}
+		for _, l := range set {
+			u := l.Dir
+			n := math.Sqrt(u[0]*u[0] + u[1]*u[1] + u[2]*u[2])
+			p := l.Point
+			if h2 := u[0]*u[0] + u[1]*u[1]; h2 > 1e-12*n*n {
+				t := ((f.sv.centroid[0]-p[0])*u[0] + (f.sv.centroid[1]-p[1])*u[1]) / h2
+				p = [3]float64{p[0] + t*u[0], p[1] + t*u[1], p[2] + t*u[2]}
+			}
+			az := math.Atan2(u[0], u[1])
+			dip := math.Asin(math.Max(-1, math.Min(1, -u[2]/n)))
+			if holdAz {
+				az = haz
+			}
+			if holdDip {
+				dip = hdip
+			}
+			st.lines = append(st.lines, f.sv.geomFrom(seed{e: p[0], n: p[1], az: az, z: p[2]}, holdAz, holdDip, dip, f.set.MinDepth))
+		}
+		out = append(out, st)
+	}
+	return out
 }
 
 // growStarts returns the starts for a fit of one line more than prev: prev's lines

@@ -299,6 +299,18 @@ type Settings struct {
 	// tell the two apart; a fit that holds it below misses by far more
 	// than the noise and biases the lines below (see report's aboveFit).
 	Above []Line
+	// Starts are further starting geometries, each a set of lines (a point on
+	// each and its direction, in the readings' frame): a fit of as many lines as
+	// a set holds, at the automatic count or at Count, is also started from it
+	// (the lines moved along themselves to where they pass nearest the
+	// readings' centroid; on a single traverse only their crossing and depth
+	// are taken, the angles held and released as for the fit's own starts), and
+	// takes it when its sum of squares is lower and its lines have not
+	// collapsed onto one another. A caller that fits traverses one by one can
+	// give the lines fitted at the neighbouring traverses: a traverse whose own
+	// starts all end in a worse local minimum is then fitted as its neighbours
+	// were (cmd/undercurrent refitFromNeighbours). Nil, the default, adds none.
+	Starts [][]Line
 	// Robust enables Huber weights by iterative reweighting (Huber 1964; Holland &
 	// Welsch 1977), for data with outliers.
 	Robust bool
@@ -385,6 +397,20 @@ func (s *Settings) check() error {
 			}
 			if !ok {
 				return fmt.Errorf("inverse: Settings.Above[%d] needs a finite point and a non-zero finite direction", i)
+			}
+		}
+	}
+	for i, set := range s.Starts {
+		if len(set) == 0 || len(set) > 8 {
+			return fmt.Errorf("inverse: Settings.Starts[%d] has %d lines, want 1 to 8", i, len(set))
+		}
+		for j, l := range set {
+			ok := l.Dir[0] != 0 || l.Dir[1] != 0 || l.Dir[2] != 0
+			for k := 0; k < 3; k++ {
+				ok = ok && finite(l.Point[k]) && finite(l.Dir[k])
+			}
+			if !ok {
+				return fmt.Errorf("inverse: Settings.Starts[%d][%d] needs a finite point and a non-zero finite direction", i, j)
 			}
 		}
 	}

@@ -2842,6 +2842,9 @@ feed:
 		bar.Finish()
 	}
 	if err == nil {
+		// A group whose fit stopped in a worse local minimum than its
+		// neighbours' is fitted again from their lines (neighbourseed.go).
+		refitFromNeighbours(sv, set, func(g *group) float64 { return sv.groupNoise(g, o.noise) })
 		// A line above the sensors is a far line that reaches every
 		// traverse alike too: the line-above search runs first, on the
 		// uniform-background fits, and the along term is weighed only
