@@ -85,6 +85,13 @@ func TestCompareSubThresholdStep(t *testing.T) {
 	if strings.Contains(b.String(), ", constant") || strings.Contains(b.String(), ": unchanged") {
 		t.Errorf("text calls the ratio constant or the step unchanged:\n%s", b.String())
 	}
+	var h strings.Builder
+	if err := WriteComparisonHTML(&h, c); err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(h.String(), "under the current threshold") || !strings.Contains(h.String(), "the supply did not change") {
+		t.Errorf("page does not say the step is under the threshold and the supply unchanged")
+	}
 }
 
 // TestCompareRatioNotConstantWithoutStep: a ratio whose chi-square rejects
@@ -107,6 +114,9 @@ func TestCompareRatioNotConstantWithoutStep(t *testing.T) {
 	p := ratioProfile(mk(func(i int) float64 { return 1 - 0.002*float64(i) }, rng), 1.5, 0.075, true, s)
 	if p == nil || p.Constant || p.Step != nil {
 		t.Errorf("drifting ratio: constant %v, step %+v: want not constant and no step", p != nil && p.Constant, p.Step)
+	}
+	if m := ratioMeaning(&ConductorComparison{Ratio: p}, false); !strings.Contains(m, "does not hold along the route") {
+		t.Errorf("page's meaning of a drifting ratio: %q", m)
 	}
 	// Pure noise about one level: over 2000 trials, a step under the
 	// threshold is found (a false alarm) in under 0.5% of them, and the
