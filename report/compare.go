@@ -316,6 +316,11 @@ type RatioStep struct {
 	// (downstream less upstream), negative for a loss; absent when the
 	// direction is not known.
 	CurrentAlongFlowA *float64 `json:"current_along_flow_a,omitempty"`
+	// BelowThreshold is true for a step many sigmas out (beyond
+	// subThresholdSigmas, where the chi-square rejects one level and the
+	// step explains the scatter) whose current is under the practical
+	// threshold: found and reported as such, not hidden.
+	BelowThreshold bool `json:"below_threshold,omitempty"`
 
 	beforeApplied, afterApplied bool
 	// split is OLD's chainage between the two pairs the step falls
@@ -354,6 +359,9 @@ type StepComparison struct {
 	Change       *float64 `json:"change_a,omitempty"`
 	ChangeSigma  *float64 `json:"change_sigma_a,omitempty"`
 	Z            *float64 `json:"z,omitempty"`
+	// BelowThreshold is true for a grown or shrunk step whose change is
+	// beyond --sigmas but under the practical current threshold.
+	BelowThreshold bool `json:"below_threshold,omitempty"`
 }
 
 // Change is one thing that changed, in words, for the list a crew reads:
@@ -388,7 +396,10 @@ type Change struct {
 	Unit         string   `json:"unit,omitempty"`
 	Stations     []string `json:"stations,omitempty"`
 	Notes        []string `json:"notes,omitempty"`
-	Message      string   `json:"message"`
+	// BelowThreshold is true for a ratio-step, step-grown or step-shrunk
+	// that is many sigmas out but under the practical current threshold.
+	BelowThreshold bool   `json:"below_threshold,omitempty"`
+	Message        string `json:"message"`
 }
 
 // roundCh rounds a chainage to the centimetre for the list of changes.
@@ -1188,6 +1199,26 @@ func inflated(sigma, chi2 float64, dof int) float64 {
 	return sigma
 }
 
+// subThresholdSigmas is how many sigmas a step of the ratio must be out
+// to be found when its current is under the practical threshold: 5
+// sigma, the usual bar for a finding searched for among many places
+// (common practice), since the step is looked for at every split of the
+// stations.
+const subThresholdSigmas = 5.0
+
+// chi2Sigmas returns how many standard normal sigmas (one-sided) chi2
+// for dof degrees of freedom lies above its expectation, by the
+// Wilson-Hilferty cube-root approximation (Wilson and Hilferty 1931,
+// Proc. Natl. Acad. Sci. 17, 684): (chi2/dof)^(1/3) is near normal with
+// mean 1-2/(9 dof) and variance 2/(9 dof). 0 for no degrees of freedom.
+func chi2Sigmas(chi2 float64, dof int) float64 {
+	if dof <= 0 {
+		return 0
+	}
+	k := float64(dof)
+	return (math.Cbrt(chi2/k) - (1 - 2/(9*k))) / math.Sqrt(2/(9*k))
+}
+
 // ratioProfile tests the ratio NEW/OLD along the stations for one level
 // and a step (see RatioProfile). medI is OLD's median |current|, minI the
 // practical threshold of current; dc says OLD's currents are signed along
@@ -1223,7 +1254,7 @@ func ratioProfile(st []StationChange, medI, minI float64, dc bool, s CompareSett
 	_, _, p.Chi2 = weightedMean(r, rs)
 	p.Dof = len(r) - 1
 	// The most significant single step.
-	bestZ := 0.0
+	bestZ, bestChi2 := 0.0, 0.0
 	for k := 1; k < len(r); k++ {
 		a, as, ac := weightedMean(r[:k], rs[:k])
 		b, bs, bc := weightedMean(r[k:], rs[k:])
@@ -1233,7 +1264,7 @@ func ratioProfile(st []StationChange, medI, minI float64, dc bool, s CompareSett
 		as, bs = inflated(as, ac+bc, dof), inflated(bs, ac+bc, dof)
 		z := math.Abs(b-a) / math.Hypot(as, bs)
 		if z > bestZ {
-			bestZ = z
+			bestZ, bestChi2 = z, ac+bc
 			var after []float64
 			for _, i := range idx[k:] {
 				after = append(after, math.Abs(st[i].OldCurrent))
@@ -1245,13 +1276,29 @@ func ratioProfile(st []StationChange, medI, minI float64, dc bool, s CompareSett
 			}
 		}
 	}
-	if p.Step != nil && !(p.Step.Z > s.Sigmas && math.Abs(p.Step.CurrentA) >= minI) {
-		p.Step = nil
+	// One level is rejected when the stations' chi-square about it is
+	// beyond --sigmas (one-sided, by the Wilson-Hilferty approximation).
+	varies := chi2Sigmas(p.Chi2, p.Dof) > s.Sigmas
+	if stp := p.Step; stp != nil && !(stp.Z > s.Sigmas && math.Abs(stp.CurrentA) >= minI) {
+		// Under the practical threshold a step is still found when it is
+		// many sigmas out (subThresholdSigmas: the search tries every
+		// split, so --sigmas alone would find steps in noise), one level
+		// is rejected and the step leaves no scatter beyond the sigmas
+		// (a ratio that drifts along the route is no step): a defect
+		// growing slowly shows there, and the supply is read upstream
+		// of it, not averaged across it.
+		if stp.Z > math.Max(s.Sigmas, subThresholdSigmas) && varies && !(chi2Sigmas(bestChi2, len(r)-2) > s.Sigmas) {
+			stp.BelowThreshold = true
+		} else {
+			p.Step = nil
+		}
 	}
 	if p.Step != nil {
 		bracketStep(p.Step, st, idx, r, rs, s.Sigmas)
 	}
-	p.Constant = p.Step == nil
+	// Constant only when no step was found and the chi-square does not
+	// reject one level.
+	p.Constant = p.Step == nil && !varies
 	p.MedianLevel, p.MedianLevelSigma = p.Level, p.LevelSigma
 	p.LevelFrom = "all"
 	if p.Step == nil {
@@ -1487,14 +1534,18 @@ func (c *Comparison) compareSteps(old, newDoc *Document, oc, nc, number int, map
 		sd := math.Sqrt(sq(b.sg) + sq(level*a.sg) + sq(a.step*levelSigma))
 		z := zOf(d, sd)
 		sc.Change, sc.ChangeSigma, sc.Z = ptr(d), ptr(sd), ptr(z)
+		// Beyond --sigmas the step grew or shrank, and is said so under
+		// the practical threshold too (BelowThreshold): a defect that
+		// grows slowly is not "unchanged" at every survey.
 		switch {
-		case math.Abs(z) > s.Sigmas && math.Abs(d) >= cc.MinCurrentChangeA && d > 0:
+		case math.Abs(z) > s.Sigmas && d > 0:
 			sc.Status = "grown"
-		case math.Abs(z) > s.Sigmas && math.Abs(d) >= cc.MinCurrentChangeA:
+		case math.Abs(z) > s.Sigmas:
 			sc.Status = "shrunk"
 		default:
 			sc.Status = "unchanged"
 		}
+		sc.BelowThreshold = sc.Status != "unchanged" && math.Abs(d) < cc.MinCurrentChangeA
 		c.Steps = append(c.Steps, sc)
 	}
 	for j, b := range ns {
@@ -1617,7 +1668,7 @@ func (c *Comparison) listChanges() {
 						ch.Stations = append(ch.Stations, sc.OldKey)
 					}
 				}
-				ch.Message = head + fmt.Sprintf(": along the flow the current now %s there by about %s A more than in OLD: %s", verb, strconv.FormatFloat(math.Abs(a), 'g', 3, 64), why)
+				ch.Message = head + fmt.Sprintf(": along the flow the current now %s there by about %s A more than in OLD%s: %s", verb, strconv.FormatFloat(math.Abs(a), 'g', 3, 64), under(st.BelowThreshold, cc.MinCurrentChangeA), why)
 				if len(ch.Stations) > 0 {
 					ch.Message += fmt.Sprintf("; the stations past it, %s, each read this change against the supply's factor", strings.Join(ch.Stations, ", "))
 				}
@@ -1626,8 +1677,9 @@ func (c *Comparison) listChanges() {
 				if st.After != st.Before {
 					ch.Sigma = ptr(math.Abs(st.CurrentA) * math.Hypot(st.BeforeSigma, st.AfterSigma) / math.Abs(st.After-st.Before))
 				}
-				ch.Message = head + fmt.Sprintf(": about %s A if the current is fed from the start of the route (the reverse if fed from the far end): a loss that changed there", signed(strconv.FormatFloat(st.CurrentA, 'g', 3, 64)))
+				ch.Message = head + fmt.Sprintf(": about %s A if the current is fed from the start of the route (the reverse if fed from the far end)%s: a loss that changed there", signed(strconv.FormatFloat(st.CurrentA, 'g', 3, 64)), under(st.BelowThreshold, cc.MinCurrentChangeA))
 			}
+			ch.BelowThreshold = st.BelowThreshold
 			c.Changes = append(c.Changes, ch)
 		}
 		for _, sp := range c.Steps {
@@ -1655,6 +1707,11 @@ func (c *Comparison) listChanges() {
 				ch.Value, ch.Sigma = ptr(*sp.Change), ptr(*sp.ChangeSigma)
 				msg = fmt.Sprintf("the change of current at chainage %.1f-%.1f m has %s: %s A in OLD, %s A in NEW, its size %s A (%.1f sigma)",
 					sp.ChainageFrom, sp.ChainageTo, sp.Status, signed(pmText(*sp.OldStep, *sp.OldStepSigma, 3)), signed(pmText(*sp.NewStep, *sp.NewStepSigma, 3)), signed(pmText(*sp.Change, *sp.ChangeSigma, 3)), math.Abs(*sp.Z))
+				if sp.BelowThreshold {
+					ch.BelowThreshold = true
+					msg = fmt.Sprintf("the change of current at chainage %.1f-%.1f m has %s by %s A (%.1f sigma), under the %.2g A threshold: %s A in OLD, %s A in NEW",
+						sp.ChainageFrom, sp.ChainageTo, sp.Status, pmText(math.Abs(*sp.Change), *sp.ChangeSigma, 3), math.Abs(*sp.Z), cc.MinCurrentChangeA, signed(pmText(*sp.OldStep, *sp.OldStepSigma, 3)), signed(pmText(*sp.NewStep, *sp.NewStepSigma, 3)))
+				}
 			}
 			ch.Message = who + msg
 			c.Changes = append(c.Changes, ch)
@@ -1725,6 +1782,15 @@ func (c *Comparison) listChanges() {
 			}
 		}
 	}
+}
+
+// under words a change found under the practical threshold of thr A
+// ("" when it is beyond it).
+func under(below bool, thr float64) string {
+	if !below {
+		return ""
+	}
+	return fmt.Sprintf(", under the %.2g A threshold", thr)
 }
 
 // notCovered words a step of one survey that the other did not walk on
@@ -1927,16 +1993,23 @@ func WriteComparisonText(w io.Writer, c *Comparison) error {
 		}
 		if r := cc.Ratio; r != nil {
 			word := "constant"
-			if !r.Constant {
+			switch {
+			case r.Step == nil && !r.Constant:
+				word = "not constant: the stations scatter about one level beyond their sigmas, and no single step explains it"
+			case !r.Constant:
 				word = "not constant"
+			}
+			stepNote := ""
+			if r.Step != nil && r.Step.BelowThreshold {
+				stepNote = fmt.Sprintf(" (%.1f sigma, under the current threshold)", r.Step.Z)
 			}
 			switch r.LevelFrom {
 			case "upstream":
-				fmt.Fprintf(&b, "Ratio NEW/OLD over %d stations (chi-square %.1f for %d degrees of freedom), %s: steps from %s to %s between %s and %s; the supply's factor is %s, on the side the current flows from", r.Stations, r.Chi2, r.Dof, word,
-					pmText(r.Step.Before, r.Step.BeforeSigma, 3), pmText(r.Step.After, r.Step.AfterSigma, 3), r.Step.FromKey, r.Step.ToKey, pmText(r.Level, r.LevelSigma, 3))
+				fmt.Fprintf(&b, "Ratio NEW/OLD over %d stations (chi-square %.1f for %d degrees of freedom), %s: steps from %s to %s between %s and %s%s; the supply's factor is %s, on the side the current flows from", r.Stations, r.Chi2, r.Dof, word,
+					pmText(r.Step.Before, r.Step.BeforeSigma, 3), pmText(r.Step.After, r.Step.AfterSigma, 3), r.Step.FromKey, r.Step.ToKey, stepNote, pmText(r.Level, r.LevelSigma, 3))
 			case "unknown":
-				fmt.Fprintf(&b, "Ratio NEW/OLD over %d stations (chi-square %.1f for %d degrees of freedom), %s: steps from %s to %s between %s and %s; which side is the supply's factor depends on the end the current is fed from", r.Stations, r.Chi2, r.Dof, word,
-					pmText(r.Step.Before, r.Step.BeforeSigma, 3), pmText(r.Step.After, r.Step.AfterSigma, 3), r.Step.FromKey, r.Step.ToKey)
+				fmt.Fprintf(&b, "Ratio NEW/OLD over %d stations (chi-square %.1f for %d degrees of freedom), %s: steps from %s to %s between %s and %s%s; which side is the supply's factor depends on the end the current is fed from", r.Stations, r.Chi2, r.Dof, word,
+					pmText(r.Step.Before, r.Step.BeforeSigma, 3), pmText(r.Step.After, r.Step.AfterSigma, 3), r.Step.FromKey, r.Step.ToKey, stepNote)
 			default:
 				fmt.Fprintf(&b, "Ratio NEW/OLD: %s over %d stations (chi-square %.1f for %d degrees of freedom), %s", pmText(r.Level, r.LevelSigma, 3), r.Stations, r.Chi2, r.Dof, word)
 			}
@@ -1969,6 +2042,9 @@ func WriteComparisonText(w io.Writer, c *Comparison) error {
 				n = signed(pmText(*sp.NewStep, *sp.NewStepSigma, 3)) + " A"
 			}
 			status := sp.Status
+			if sp.BelowThreshold {
+				status += fmt.Sprintf(" by %s A (%.1f sigma), under the current threshold", pmText(math.Abs(*sp.Change), *sp.ChangeSigma, 3), math.Abs(*sp.Z))
+			}
 			switch sp.Status {
 			case "not-covered-by-new":
 				n, status = "not walked on both sides", "not covered by NEW"

@@ -250,6 +250,9 @@ func ratioMeaning(cc *ConductorComparison, ac bool) string {
 			fmt.Fprintf(&b, "Past the step, along the flow, the stations read %s, that factor less the change of loss: along the flow the current changes there by about %+.3g A more than in OLD, a loss that changed.",
 				pm(otherSide(r), otherSideSigma(r)), *st.CurrentAlongFlowA)
 		}
+		if st.BelowThreshold {
+			fmt.Fprintf(&b, " The step is under the current threshold of %.2g A but %.1f σ out: a loss that changed by a little, found so that the supply is read upstream of it.", cc.MinCurrentChangeA, st.Z)
+		}
 	case "unknown":
 		st := r.Step
 		fmt.Fprintf(&b, "The ratio NEW/OLD reads %s before chainage %.1f m and %s past %.1f m (between %s and %s, %.1f σ; %s). ",
@@ -260,6 +263,9 @@ func ratioMeaning(cc *ConductorComparison, ac bool) string {
 			fmt.Fprintf(&b, "Either reading may also hold %s, which that survey did not walk. ", doubt)
 		}
 		fmt.Fprintf(&b, "The step itself is about %+.3g A if the current is fed from the start of the route (the reverse if from the far end): a loss that changed there.", st.CurrentA)
+		if st.BelowThreshold {
+			fmt.Fprintf(&b, " It is under the current threshold of %.2g A but %.1f σ out.", cc.MinCurrentChangeA, st.Z)
+		}
 	default:
 		fmt.Fprintf(&b, "The current now is %s times what it was (NEW/OLD, the weighted mean of the stations that agree with the median ratio; %s). ", pm(r.Level, r.LevelSigma), fit)
 		switch {
@@ -271,7 +277,11 @@ func ratioMeaning(cc *ConductorComparison, ac bool) string {
 		default:
 			b.WriteString("That is 1 within the thresholds: the current feeding the route did not change. ")
 		}
-		b.WriteString("It holds along the route (no step beyond the thresholds): no loss changed between the stations both surveys walked.")
+		if r.Constant {
+			b.WriteString("It holds along the route (no step beyond the thresholds): no loss changed between the stations both surveys walked.")
+		} else {
+			b.WriteString("It does not hold along the route: the stations scatter about it beyond their sigmas, yet no single step explains that (a ratio drifting along the route, or more than one loss that changed); read the stations' changes one by one.")
+		}
 	}
 	return b.String()
 }

@@ -72,6 +72,10 @@ is the weighted mean of the stations that agree with the median ratio; with
 one it is the ratio on the side the current flows from (DC currents are
 signed along increasing chainage), so a fall along the flow is a loss
 wherever the leak lies, and the stations past it are listed under the step.
+A step 5 sigmas out (or --sigmas if more) that explains the ratio's scatter
+is found under --min-current-change too, and said to be under it; so is a
+current-step finding grown or shrunk beyond --sigmas by less than the
+threshold: a defect growing slowly is not "unchanged".
 For AC (no direction) both sides' readings are given and each station is
 measured against its own side's. A change of depth shared by the stations
 (a sensor height or ground level given differently) is reported once and
