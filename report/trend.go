@@ -7,7 +7,9 @@ import (
 	"html/template"
 	"io"
 	"math"
+	"regexp"
 	"sort"
+	"strconv"
 	"strings"
 )
 
@@ -223,6 +225,9 @@ func CompareSeries(docs []*Document, names []string, s CompareSettings) (*Trend,
 			iv.Ratio, iv.RatioSigma = ptr(r.Level), ptr(r.LevelSigma)
 			if p := c.Conductors[0].Partial; p != nil && (r.LevelApplied || math.Abs(r.Level-1) > s.Sigmas*r.LevelSigma) {
 				iv.RatioDoubt = p.LevelDoubt
+				if cm, ok := t.maps[k-1][1]; ok && k > 1 {
+					iv.RatioDoubt = doubtOnFirst(p.LevelDoubt, cm.f)
+				}
 			}
 		}
 		t.Intervals = append(t.Intervals, iv)
@@ -272,6 +277,26 @@ func CompareSeries(docs []*Document, names []string, s CompareSettings) (*Trend,
 		return c, nil
 	})
 	return t, nil
+}
+
+// doubtAt finds the chainages in a ratio's doubt ("... first station at
+// 200.0 m").
+var doubtAt = regexp.MustCompile(`station at (-?[0-9]+\.[0-9]) m`)
+
+// doubtOnFirst adds survey 1's chainage to each chainage of a ratio's
+// doubt worded on another survey's (f maps that survey's chainage to
+// survey 1's), where the two differ.
+func doubtOnFirst(doubt string, f func(float64) float64) string {
+	return doubtAt.ReplaceAllStringFunc(doubt, func(m string) string {
+		x, err := strconv.ParseFloat(doubtAt.FindStringSubmatch(m)[1], 64)
+		if err != nil {
+			return m
+		}
+		if y := f(x); math.Abs(y-x) >= 0.05 {
+			return fmt.Sprintf("%s (%.1f m on survey 1's chainage)", m, y)
+		}
+		return m
+	})
 }
 
 // surveyRefusal names the survey numbers in a refusal of Compare between
