@@ -7,7 +7,9 @@ import (
 	"html/template"
 	"io"
 	"math"
+	"regexp"
 	"sort"
+	"strconv"
 	"strings"
 )
 
@@ -31,20 +33,25 @@ type Trend struct {
 	// the cover, "depth" when each gives the depth below the same
 	// reference, "" when they are not one quantity (then no depth is
 	// given).
-	DepthQuantity     string              `json:"depth_quantity"`
-	MinCurrentChangeA float64             `json:"min_current_change_a,omitempty"`
-	MinCoverChangeM   float64             `json:"min_cover_change_m"`
-	Sigmas            float64             `json:"sigmas"`
-	ToleranceM        float64             `json:"tolerance_m"`
-	MinCoverM         *float64            `json:"min_cover_m,omitempty"`
-	Notes             []string            `json:"notes,omitempty"`
-	Surveys           []TrendSurvey       `json:"surveys"`
-	Conductors        []TrendConductor    `json:"conductors"`
-	Intervals         []TrendInterval     `json:"intervals"`
-	Changes           []TrendChange       `json:"changes"`
-	pairs             []*Comparison       // Compare(first, k), k >= 1
-	steps             []*Comparison       // Compare(k-1, k)
-	maps              []map[int]chainMapF // per survey: its conductor -> first's chainage
+	DepthQuantity     string           `json:"depth_quantity"`
+	MinCurrentChangeA float64          `json:"min_current_change_a,omitempty"`
+	MinCoverChangeM   float64          `json:"min_cover_change_m"`
+	Sigmas            float64          `json:"sigmas"`
+	ToleranceM        float64          `json:"tolerance_m"`
+	MinCoverM         *float64         `json:"min_cover_m,omitempty"`
+	Notes             []string         `json:"notes,omitempty"`
+	Surveys           []TrendSurvey    `json:"surveys"`
+	Conductors        []TrendConductor `json:"conductors"`
+	Intervals         []TrendInterval  `json:"intervals"`
+	Changes           []TrendChange    `json:"changes"`
+	// Steps follows each current step found on a conductor over the
+	// surveys (see TrendStep): its size in each survey, its growth
+	// against survey 1 and its change since the survey before that
+	// walked both sides of it.
+	Steps []TrendStep         `json:"steps"`
+	pairs []*Comparison       // Compare(first, k), k >= 1
+	steps []*Comparison       // Compare(k-1, k)
+	maps  []map[int]chainMapF // per survey: its conductor -> first's chainage
 }
 
 type chainMapF struct {
@@ -100,11 +107,17 @@ type TrendValue struct {
 
 // TrendInterval is one pair of consecutive surveys: the ratio of the
 // later to the earlier on conductor 1 and how many changes were flagged.
+// RatioDoubt is set when the two walked different stretches and the
+// ratio differs from 1 (beyond --sigmas, or beyond the thresholds): it
+// may be a change of loss outside the stretch both walked rather than
+// the supply (PartialCoverage.LevelDoubt, NEW the later survey and OLD
+// the earlier).
 type TrendInterval struct {
 	From       int      `json:"from_survey"`
 	To         int      `json:"to_survey"`
 	Ratio      *float64 `json:"ratio,omitempty"`
 	RatioSigma *float64 `json:"ratio_sigma,omitempty"`
+	RatioDoubt string   `json:"ratio_doubt,omitempty"`
 	Changes    int      `json:"changes"`
 }
 
@@ -128,7 +141,7 @@ func CompareSeries(docs []*Document, names []string, s CompareSettings) (*Trend,
 	s = s.filled()
 	t := &Trend{Cautions: append([]string(nil), Cautions...), Kind: "survey-trend", Mode: docs[0].Signal.Mode,
 		MinCurrentChangeA: s.MinCurrentChange, MinCoverChangeM: s.MinCoverChange, Sigmas: s.Sigmas, ToleranceM: s.Tolerance,
-		Surveys: []TrendSurvey{}, Conductors: []TrendConductor{}, Intervals: []TrendInterval{}, Changes: []TrendChange{}}
+		Surveys: []TrendSurvey{}, Conductors: []TrendConductor{}, Intervals: []TrendInterval{}, Changes: []TrendChange{}, Steps: []TrendStep{}}
 	one := 1.0
 	t.Surveys = append(t.Surveys, TrendSurvey{Survey: 1, Name: names[0], Matched: usedStations(docs[0]), SupplyRatio: &one, SupplyRatioSigma: ptr(0)})
 	t.pairs = []*Comparison{nil}
@@ -208,9 +221,23 @@ func CompareSeries(docs []*Document, names []string, s CompareSettings) (*Trend,
 		t.steps = append(t.steps, c)
 		iv := TrendInterval{From: k, To: k + 1, Changes: len(c.Changes)}
 		if len(c.Conductors) > 0 && c.Conductors[0].Ratio != nil {
-			iv.Ratio, iv.RatioSigma = ptr(c.Conductors[0].Ratio.Level), ptr(c.Conductors[0].Ratio.LevelSigma)
+			r := c.Conductors[0].Ratio
+			iv.Ratio, iv.RatioSigma = ptr(r.Level), ptr(r.LevelSigma)
+			if p := c.Conductors[0].Partial; p != nil && (r.LevelApplied || math.Abs(r.Level-1) > s.Sigmas*r.LevelSigma) {
+				iv.RatioDoubt = p.LevelDoubt
+				if cm, ok := t.maps[k-1][1]; ok && k > 1 {
+					iv.RatioDoubt = doubtOnFirst(p.LevelDoubt, cm.f)
+				}
+			}
 		}
 		t.Intervals = append(t.Intervals, iv)
+		if k > 1 {
+			// The pair's own cautions (surveys that walked different
+			// stretches), as against survey 1 above.
+			for _, ca := range c.Cautions[min(len(Cautions), len(c.Cautions)):] {
+				t.Cautions = append(t.Cautions, fmt.Sprintf("Survey %d against survey %d: %s", k+1, k, ca))
+			}
+		}
 		for _, ch := range c.Changes {
 			tc := TrendChange{From: k, To: k + 1, Change: ch}
 			if k > 1 {
@@ -235,7 +262,41 @@ func CompareSeries(docs []*Document, names []string, s CompareSettings) (*Trend,
 			t.Changes = append(t.Changes, tc)
 		}
 	}
+	// Each current step over the surveys; across a survey that did not
+	// cover a step, the surveys around it compared (once each pair).
+	across := map[[2]int]*Comparison{}
+	t.stepSeries(docs, s, func(a, b int) (*Comparison, error) {
+		if c, ok := across[[2]int{a, b}]; ok {
+			return c, nil
+		}
+		c, err := Compare(docs[a], docs[b], names[a], names[b], s)
+		if err != nil {
+			return nil, surveyRefusal(err, a+1, b+1)
+		}
+		across[[2]int{a, b}] = c
+		return c, nil
+	})
 	return t, nil
+}
+
+// doubtAt finds the chainages in a ratio's doubt ("... first station at
+// 200.0 m").
+var doubtAt = regexp.MustCompile(`station at (-?[0-9]+\.[0-9]) m`)
+
+// doubtOnFirst adds survey 1's chainage to each chainage of a ratio's
+// doubt worded on another survey's (f maps that survey's chainage to
+// survey 1's), where the two differ.
+func doubtOnFirst(doubt string, f func(float64) float64) string {
+	return doubtAt.ReplaceAllStringFunc(doubt, func(m string) string {
+		x, err := strconv.ParseFloat(doubtAt.FindStringSubmatch(m)[1], 64)
+		if err != nil {
+			return m
+		}
+		if y := f(x); math.Abs(y-x) >= 0.05 {
+			return fmt.Sprintf("%s (%.1f m on survey 1's chainage)", m, y)
+		}
+		return m
+	})
 }
 
 // surveyRefusal names the survey numbers in a refusal of Compare between
@@ -434,17 +495,41 @@ func WriteTrendText(w io.Writer, t *Trend) error {
 			b.WriteString("\n")
 		}
 	}
+	if len(t.Steps) > 0 {
+		b.WriteString("\nCurrent steps per survey (a loss negative, ± one sigma; its growth against survey 1, and its change since the survey before that walked both sides of it):\n")
+		for _, ts := range t.Steps {
+			fmt.Fprintf(&b, "  %s:\n", stepWhere(ts))
+			for _, v := range ts.Surveys {
+				line := fmt.Sprintf("    %d. %s", v.Survey, stepCell(v))
+				if v.Status == stepFound && len(v.Groups) > 0 {
+					line += " (" + strings.Join(v.Groups, "-") + ")"
+				}
+				for _, x := range []string{stepGrowthText(v), stepSinceText(v)} {
+					if x != "" {
+						line += "; " + x
+					}
+				}
+				b.WriteString(line + "\n")
+			}
+		}
+	}
 	b.WriteString("\nBetween consecutive surveys:\n")
 	for _, iv := range t.Intervals {
 		r := ""
 		if iv.Ratio != nil {
 			r = ", ratio " + pm(*iv.Ratio, *iv.RatioSigma)
+			if iv.RatioDoubt != "" {
+				r += fmt.Sprintf(" (the supply, or %s; NEW survey %d, OLD survey %d)", iv.RatioDoubt, iv.To, iv.From)
+			}
 		}
 		fmt.Fprintf(&b, "  %d -> %d%s: %s\n", iv.From, iv.To, r, plural(iv.Changes, "change"))
 		for _, ch := range t.Changes {
 			if ch.From == iv.From {
 				fmt.Fprintf(&b, "     [%s] %s\n", ch.Kind, ch.Message)
 			}
+		}
+		for _, n := range notCoveredIn(t, iv.To) {
+			fmt.Fprintf(&b, "     %s\n", n)
 		}
 	}
 	b.WriteString("\nCautions:\n")
@@ -466,6 +551,18 @@ type trendView struct {
 	Changes             []changeRow
 	Conductors          []trendConductorView
 	CoverHead           string
+	Steps               []trendStepRow
+}
+
+// trendStepRow is one current step of the series: where, and per survey
+// its size, growth against survey 1 and change since the survey before.
+type trendStepRow struct {
+	Where string
+	Cells []trendStepCell
+}
+
+type trendStepCell struct {
+	Size, Growth, Since string
 }
 
 // HasInterval is true: the trend's changes are between two surveys.
@@ -519,10 +616,28 @@ func WriteTrendHTML(w io.Writer, t *Trend) error {
 			iv := t.Intervals[s.Survey-2]
 			row.Step = plural(iv.Changes, "change")
 			if iv.Ratio != nil {
-				row.Step = "ratio " + pm(*iv.Ratio, *iv.RatioSigma) + ", " + row.Step
+				doubt := ""
+				if iv.RatioDoubt != "" {
+					doubt = fmt.Sprintf(" (the supply, or %s; NEW survey %d, OLD survey %d)", iv.RatioDoubt, iv.To, iv.From)
+				}
+				row.Step = "ratio " + pm(*iv.Ratio, *iv.RatioSigma) + doubt + ", " + row.Step
+			}
+			for _, n := range notCoveredIn(t, s.Survey) {
+				row.Step += "; " + n
 			}
 		}
 		v.Surveys = append(v.Surveys, row)
+	}
+	for _, ts := range t.Steps {
+		row := trendStepRow{Where: stepWhere(ts)}
+		for _, sv := range ts.Surveys {
+			c := trendStepCell{Size: stepCell(sv), Growth: stepGrowthText(sv), Since: stepSinceText(sv)}
+			if sv.Status == stepFound && len(sv.Groups) > 0 {
+				c.Size += " (" + strings.Join(sv.Groups, "–") + ")"
+			}
+			row.Cells = append(row.Cells, c)
+		}
+		v.Steps = append(v.Steps, row)
 	}
 	for i, ch := range t.Changes {
 		v.Changes = append(v.Changes, changeRow{N: i + 1, Kind: ch.Kind, Where: changeWhere(ch.Change), Message: ch.Message, Interval: fmt.Sprintf("%d → %d", ch.From, ch.To)})
@@ -587,7 +702,17 @@ var trendTemplate = template.Must(template.New("trend").Funcs(template.FuncMap{"
 {{end}}</section>
 ` + pageChanges + `
 <p class="values">Each change is as compare words it for the two surveys, its chainages in the earlier one's; the Where column gives them on survey 1's chainage.</p>
-{{range .Conductors}}<section>
+{{if .Steps}}<section id="steps">
+<h2>Current steps, survey by survey</h2>
+<div class="wide"><table class="findings">
+<thead><tr><th>Where (survey 1's chainage)</th>{{range .T.Surveys}}<th>Survey {{.Survey}}</th>{{end}}</tr></thead>
+<tbody>
+{{range .Steps}}<tr><td class="where">{{.Where}}</td>{{range .Cells}}<td>{{.Size}}{{if .Growth}}<br>{{.Growth}}{{end}}{{if .Since}}<br>{{.Since}}{{end}}</td>{{end}}</tr>
+{{end}}</tbody>
+</table></div>
+<p class="values">Each current step (current leaving the conductor, negative, or joining it) as each survey's locate sized it, ± one standard deviation; its growth against survey 1 (the size beyond the supply's factor between the two, as compare measures it) and its change since the survey before that walked both sides of it. A survey that did not walk both sides of a step is "not covered" there, and the surveys around it are compared instead. These show a step's history whatever the thresholds: the z (sigma) says how far each is beyond the reading noise.</p>
+</section>
+{{end}}{{range .Conductors}}<section>
 <h2>{{if eq .Number 1}}Along the route{{else}}Conductor {{.Number}} along the route{{end}}</h2>
 <figure>{{.Current}}
 <figcaption>Fitted current of each survey at survey 1's stations (each survey's station matched to it), one line a survey, ± two standard deviations; the newest survey blue-green and solid, the earlier ones each with its own mark and line pattern. Current is signed along survey 1's direction of increasing chainage.</figcaption>

@@ -38,15 +38,21 @@ its current over the first's along conductor 1 (compare's ratio level): a
 ratio other than 1 along the whole route means the rectifier, transmitter
 or load changed, not a loss. What changed is listed between consecutive
 surveys (1 -> 2, 2 -> 3, ...), as compare OLD NEW lists it for that pair,
-with the chainage taken onto the first survey's.
+with the chainage taken onto the first survey's. Each current step found
+on a conductor is followed survey by survey: its size in each, its growth
+against the first survey (whatever the thresholds) and its change since the
+survey before; a survey that walked only part of the route is "not
+covered" at a step beyond its stations, and the surveys around it are
+compared there instead.
 
-Prints the surveys with their supply ratios, each conductor's table and the
-changes between each two surveys, with the safety cautions; --json prints
-one JSON object instead (stable keys, the cautions first, kind
-"survey-trend"); -o FILE.html also writes a self-contained page in the
-style of locate's report.html: the cautions first, the surveys and their
-supply ratios, the changes, and per conductor the current and cover along
-the route with one line per survey, and the table. The thresholds are
+Prints the surveys with their supply ratios, each conductor's table, the
+current steps per survey and the changes between each two surveys, with
+the safety cautions; --json prints one JSON object instead (stable keys,
+the cautions first, kind "survey-trend"); -o FILE.html also writes a
+self-contained page in the style of locate's report.html: the cautions
+first, the surveys and their supply ratios, the changes, the current steps
+survey by survey, and per conductor the current and cover along the route
+with one line per survey, and the table. The thresholds are
 compare's. Exits 0 when the trend was made, whatever it found; 1 when a
 pair cannot be compared (the message names both files).
 
