@@ -350,8 +350,8 @@ func WriteComparisonHTML(w io.Writer, c *Comparison) error {
 	if len(v.Cautions) == 0 {
 		v.Cautions = Cautions
 	}
-	v.Lead = fmt.Sprintf("%s survey compared with the earlier one: %d stations matched on %s, %s.", modeName(c.Mode), c.Matched, plural(len(c.Conductors), "conductor"), plural(len(c.Changes), "change")+" beyond the thresholds")
-	v.Thresholds = fmt.Sprintf("A change is listed only when it is beyond %g standard deviations (both surveys' in quadrature) and beyond the practical threshold: %g m of %s, and the conductor's current threshold given with it below. The standard deviations count the reading noise only.",
+	v.Lead = fmt.Sprintf("%s survey compared with the earlier one: %d stations matched on %s, %s.", modeName(c.Mode), c.Matched, plural(len(c.Conductors), "conductor"), plural(len(c.Changes), "change")+" beyond the thresholds"+belowNote(changesBelow(c.Changes)))
+	v.Thresholds = fmt.Sprintf("A change is listed only when it is beyond %g standard deviations (both surveys' in quadrature) and beyond the practical threshold: %g m of %s, and the conductor's current threshold given with it below. The standard deviations count the reading noise only. "+stepBelowText,
 		c.Sigmas, c.MinCoverChangeM, orDepth(c.DepthQuantity))
 	for i, ch := range c.Changes {
 		v.Changes = append(v.Changes, changeRow{N: i + 1, Kind: ch.Kind, Where: changeWhere(ch), Message: ch.Message})
@@ -498,3 +498,28 @@ var compareTemplate = template.Must(template.New("compare").Parse(strings.TrimSu
 </body>
 </html>
 `))
+
+// stepBelowText says on the compare and trend pages that a current step
+// along the route, or its growth, is listed on its standard deviations
+// alone (Change.BelowThreshold), so that a slowly growing loss is seen.
+const stepBelowText = "A step of the current along the route, and a step's growth, is listed beyond the standard deviations alone and marked as under the practical threshold, so that a loss growing slowly from survey to survey is seen."
+
+// changesBelow counts the changes listed though under the practical
+// threshold.
+func changesBelow(chs []Change) int {
+	n := 0
+	for _, ch := range chs {
+		if ch.BelowThreshold {
+			n++
+		}
+	}
+	return n
+}
+
+// belowNote words changesBelow's count for a page's lead line.
+func belowNote(n int) string {
+	if n == 0 {
+		return ""
+	}
+	return fmt.Sprintf(" (%d of them beyond the standard deviations but under the practical threshold)", n)
+}

@@ -599,8 +599,8 @@ func WriteTrendHTML(w io.Writer, t *Trend) error {
 	}
 	q := orDepth(t.DepthQuantity)
 	v.CoverHead = strings.ToUpper(q[:1]) + q[1:]
-	v.Lead = fmt.Sprintf("%d %s surveys of one route, on the first survey's chainage: %s between consecutive surveys beyond the thresholds.", len(t.Surveys), modeName(t.Mode), plural(len(t.Changes), "change"))
-	v.Thresholds = fmt.Sprintf("A change is listed only when it is beyond %g standard deviations (both surveys' in quadrature) and beyond the practical threshold (%g m of %s; for current, 5%% of the earlier survey's median current unless given). The standard deviations count the reading noise only.", t.Sigmas, t.MinCoverChangeM, q)
+	v.Lead = fmt.Sprintf("%d %s surveys of one route, on the first survey's chainage: %s between consecutive surveys beyond the thresholds%s.", len(t.Surveys), modeName(t.Mode), plural(len(t.Changes), "change"), belowNote(trendChangesBelow(t.Changes)))
+	v.Thresholds = fmt.Sprintf("A change is listed only when it is beyond %g standard deviations (both surveys' in quadrature) and beyond the practical threshold (%g m of %s; for current, 5%% of the earlier survey's median current unless given). The standard deviations count the reading noise only. "+stepBelowText, t.Sigmas, t.MinCoverChangeM, q)
 	for _, s := range t.Surveys {
 		row := trendSurveyRow{N: s.Survey, Name: s.Name, Matched: s.Matched, Ratio: "–", Step: "–"}
 		if s.SupplyRatio != nil {
@@ -734,3 +734,15 @@ var trendTemplate = template.Must(template.New("trend").Funcs(template.FuncMap{"
 </body>
 </html>
 `))
+
+// trendChangesBelow counts the trend's changes listed though under the
+// practical threshold.
+func trendChangesBelow(chs []TrendChange) int {
+	n := 0
+	for _, ch := range chs {
+		if ch.BelowThreshold {
+			n++
+		}
+	}
+	return n
+}
