@@ -480,7 +480,37 @@ func (f *fitter) positionWeights(c *candidate) (string, error) {
 		return "", err
 	}
 	g2, _, grad, curv := pp.scaled(tp, tu)
-	if rho, ok := positionsRefused(sp, c.x, g2, s2, plain, floor2); ok {
+	// The displacements' correlation along the traverse (positionAR1),
+	// from the residuals at the weighted fit.
+	var prho float64
+	var innov []float64
+	if sp.nrhs == 1 {
+		saved := sp.w
+		res, err := sp.fullResiduals(c.x)
+		sp.w = saved
+		if err != nil {
+			return "", err
+		}
+		starts := []int{0}
+		if len(f.sv.pts)*3 == len(res) {
+			starts = traverseStarts(f.sv.pts)
+		}
+		var ok bool
+		if prho, innov, ok = positionAR1(res, grad, curv, s2, starts); !ok {
+			prho, innov = 0, nil
+		}
+		if prho > 0 {
+			// Displacements that wander: the fit's lines and
+			// background take up their slow part (a shift or a tilt
+			// of the whole traverse moves the line, not the residuals),
+			// so the residuals cannot bear their size, and the
+			// covariance takes the sigmas as given (an upper bound: the
+			// uncertainties are then conservative). The weights and the
+			// mean correction keep the scatter the residuals bear.
+			_, _, grad, curv = pp.scaled(1, 1)
+		}
+	}
+	if rho, ok := positionsRefused(sp, c.x, g2, s2, plain, floor2, prho, innov, f.sv.pts); ok {
 		// The scatter taken holds a misfit that is not scatter: the
 		// plain fit stands, and the note says why.
 		sp.y, sp.w, sp.pd, sp.ok = y, w0, nil, false
@@ -492,7 +522,7 @@ func (f *fitter) positionWeights(c *candidate) (string, error) {
 		return fmt.Sprintf("%s: %.3g m across the plan, %.3g m in height given, %s: what the fit misses is smooth along the traverse (lag-1 autocorrelation %.2f of the residuals in units of their sigmas, against under %.2g for a scatter independent from reading to reading), as a conductor, a bend or an object left out of the model leaves it, and the positions' variance would have taken it up wherever the field's gradient is steep; the fit is judged, and its uncertainties given, as without them",
 			PositionSigmaNote, plan, up, PositionSigmaRefusedNote, rho, positionSerialMax), nil
 	}
-	f.pos = &positionTerms{s2: s2, grad: grad, curv: curv}
+	f.pos = &positionTerms{s2: s2, grad: grad, curv: curv, rho: prho, innov: innov}
 	if err := sp.evaluate(c.x); err != nil {
 		return "", err
 	}
@@ -512,6 +542,9 @@ func (f *fitter) positionWeights(c *candidate) (string, error) {
 		note += fmt.Sprintf(" given, of which the residuals bear %.2g m and %.2g m, taken for the weights and the mean correction (a larger value taken as it stood would over-correct the depths)", hp, hu)
 	}
 	note += fmt.Sprintf(" (effective variance, %d rounds)", rounds)
+	if prho > 0 {
+		note += fmt.Sprintf("; %s (lag-1 autocorrelation %.2f of the displacements from reading to reading, as a receiver's fix wanders), which the uncertainties carry at the sigmas given", PositionWanderNote, prho)
+	}
 	// The weighted residuals against the variances taken: near 1 when the
 	// position sigmas and the noise hold.
 	if k := c.rss / float64(dof) / s2; !known && k < positionRatioLow {
@@ -525,6 +558,13 @@ func (f *fitter) positionWeights(c *candidate) (string, error) {
 	}
 	return note, nil
 }
+
+// PositionWanderNote is in the PositionSigmaNote of a fit whose residuals
+// are the field's gradient times a displacement that wanders along the
+// traverse (positionAR1): the positions' correlation is in its covariance
+// (positionSandwich) and the position sigmas are kept although the
+// residuals are smooth (positionsRefused).
+const PositionWanderNote = "the readings' misfit follows the field's gradient times a displacement that wanders slowly along the traverse"
 
 // PositionSigmaRefusedNote is in the PositionSigmaNote of a fit that
 // refused the position sigmas (positionsRefused): the plain fit stands.
@@ -558,7 +598,7 @@ const positionRefuseMisfit = 4
 // autocorrelation exceeds positionSerialMax, the plain fit missed by
 // positionRefuseMisfit times the noise floor's variance and the positions
 // carry more of the variance than the noise does.
-func positionsRefused(sp *separable, x, g2 []float64, s2, plain, floor2 float64) (float64, bool) {
+func positionsRefused(sp *separable, x, g2 []float64, s2, plain, floor2, prho float64, innov []float64, pts [][3]float64) (float64, bool) {
 	if sp.nrhs != 1 || !(floor2 > 0) || !(plain > positionRefuseMisfit*floor2) {
 		return 0, false
 	}
@@ -580,7 +620,24 @@ func positionsRefused(sp *separable, x, g2 []float64, s2, plain, floor2 float64)
 		z[i] = r / math.Sqrt(s2+g2[i])
 	}
 	rho, _ := lag1(z, 3)
-	return rho, rho > positionSerialMax
+	if !(rho > positionSerialMax) {
+		return rho, false
+	}
+	// Smooth, but perhaps as displacements that wander along the
+	// traverse leave it (positionAR1): kept when the filter's
+	// innovations at the correlation found are no longer smooth and
+	// no larger than the noise and the positions explain.
+	if prho > 0 && len(innov) == len(res) {
+		starts := []int{0}
+		if len(pts)*3 == len(res) {
+			starts = traverseStarts(pts)
+		}
+		ir, _ := lag1Within(innov, 3, starts)
+		if ir <= positionSerialMax && sumSq(innov)/float64(len(innov)) <= positionRatioHigh*s2 {
+			return rho, false
+		}
+	}
+	return rho, true
 }
 
 // positionScale returns the variance scales tp and tu, each in [0, 1],
@@ -727,6 +784,11 @@ type positionTerms struct {
 	s2   float64
 	grad [][3]float64
 	curv []float64
+	// rho is the lag-1 correlation of the displacements along a traverse
+	// (positionAR1; 0 for independent ones), innov the filter's whitened
+	// innovations at it (nT, 3 per reading), for the serial factor.
+	rho   float64
+	innov []float64
 }
 
 // positionSandwich returns the covariance of the parameters of a DC fit
@@ -759,35 +821,74 @@ func (f *fitter) positionSandwich(c *candidate, a0 *mat.SymDense) (*mat.SymDense
 		return nil, nil
 	}
 	w := sp.w
-	// B = sum over readings of J_i^T (W^1/2 V_i W^1/2) J_i, J_i the
-	// reading's three rows.
+	// B = sum over readings of J_i^T W^1/2 (s2 I + diag(curv)) W^1/2 J_i,
+	// J_i the reading's three rows, plus the displacements' part: with
+	// a_ij = J_i^T W^1/2 G_i[:, j] (position axis j), sum over the pairs
+	// of readings i, l of one traverse of rho^|i-l| a_ij a_lj^T, taken as
+	// sum_i (a_i b_i^T + b_i a_i^T - a_i a_i^T) with b_i = a_i + rho b_(i-1)
+	// (rho 0: each reading's own G G^T, independent displacements).
 	b := mat.NewSymDense(k, nil)
-	var vi [3][3]float64
-	ji := make([][3]float64, k) // J_i by column: ji[p][a]
-	for i := 0; i < rows; i += 3 {
-		for r := range 3 {
-			for q := range 3 {
-				v := 0.0
-				for j := range 3 {
-					v += pt.grad[i+r][j] * pt.grad[i+q][j]
+	n := rows / 3
+	starts := []int{0}
+	if len(f.sv.pts) == n {
+		starts = traverseStarts(f.sv.pts)
+	}
+	// av[(i*k+p)*3+j]: a_ij's element p for reading i.
+	av := make([]float64, n*k*3)
+	for i := range n {
+		for p := range k {
+			col := a[p*rows+3*i:]
+			for j := range 3 {
+				t := 0.0
+				for r := range 3 {
+					t += col[r] * w[3*i+r] * pt.grad[3*i+r][j]
 				}
-				if r == q {
-					v += pt.s2 + pt.curv[i+r]
-				}
-				vi[r][q] = w[i+r] * w[i+q] * v
+				av[(i*k+p)*3+j] = t
 			}
 		}
-		for p := range k {
-			col := a[p*rows:]
-			ji[p] = [3]float64{col[i], col[i+1], col[i+2]}
+	}
+	for t, s := range starts {
+		e := n
+		if t+1 < len(starts) {
+			e = starts[t+1]
 		}
-		for p := range k {
-			var t [3]float64 // (V_i J_i)[:, p]
-			for r := range 3 {
-				t[r] = vi[r][0]*ji[p][0] + vi[r][1]*ji[p][1] + vi[r][2]*ji[p][2]
+		if pt.rho > 0 && e > s {
+			// A displacement common to the whole traverse moves
+			// the line with the readings, and the depths below the
+			// logged sensors and the currents not at all: the
+			// displacements are taken about their traverse's mean
+			// (sum_i a_i (d_i - mean d) = sum_i (a_i - mean a) d_i).
+			// Independent ones (rho 0) keep the whole, as before.
+			for q := range k * 3 {
+				m := 0.0
+				for i := s; i < e; i++ {
+					m += av[i*k*3+q]
+				}
+				m /= float64(e - s)
+				for i := s; i < e; i++ {
+					av[i*k*3+q] -= m
+				}
 			}
-			for q := 0; q <= p; q++ {
-				b.SetSym(q, p, b.At(q, p)+ji[q][0]*t[0]+ji[q][1]*t[1]+ji[q][2]*t[2])
+		}
+		bij := make([]float64, k*3)
+		for i := s; i < e; i++ {
+			ai := av[i*k*3 : (i+1)*k*3]
+			for q := range bij {
+				bij[q] = ai[q] + pt.rho*bij[q]
+			}
+			for p := range k {
+				col := a[p*rows+3*i:]
+				for q := 0; q <= p; q++ {
+					colq := a[q*rows+3*i:]
+					v := 0.0
+					for r := range 3 {
+						v += col[r] * colq[r] * w[3*i+r] * w[3*i+r] * (pt.s2 + pt.curv[3*i+r])
+					}
+					for j := range 3 {
+						v += ai[p*3+j]*bij[q*3+j] + bij[p*3+j]*ai[q*3+j] - ai[p*3+j]*ai[q*3+j]
+					}
+					b.SetSym(q, p, b.At(q, p)+v)
+				}
 			}
 		}
 	}

@@ -1154,6 +1154,12 @@ func (f *fitter) report(c *candidate, scores []ModelScore) (*Result, error) {
 			for i, v := range res {
 				sr[i] = v * c.sp.w[i]
 			}
+			if f.pos != nil && f.pos.rho > 0 && len(f.pos.innov) == len(res) {
+				// Displacements correlated along the traverse are
+				// in the covariance (positionSandwich): what is
+				// left to judge is the filter's innovations.
+				copy(sr, f.pos.innov)
+			}
 			res = sr
 		}
 		rho, widen = f.serialFactor(c, res, n-k)
