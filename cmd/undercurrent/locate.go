@@ -1111,6 +1111,7 @@ func windowNoise(ac bool, noise float64, n []float64) float64 {
 // runLocate reads, corrects, fits and analyses; progress, when not nil,
 // receives a progress bar.
 func runLocate(ctx context.Context, o *locateOptions, logs []string, progress io.Writer) (*report.Document, error) {
+	orig := *o // the options as given, for a run again without the current record
 	sv, err := readSurvey(ctx, o, logs)
 	if err != nil {
 		return nil, err
@@ -1151,7 +1152,21 @@ func runLocate(ctx context.Context, o *locateOptions, logs []string, progress io
 		sv.alerts = append(sv.alerts, w)
 	}
 	o.walked = walkedSpan(sv)
-	return buildDocument(ctx, o, sv)
+	doc, err := buildDocument(ctx, o, sv)
+	if err != nil || o.curRef.path == "" || o.curRef.dropped != "" {
+		return doc, err
+	}
+	// The current record tested against the currents fitted with it
+	// (currentref.go): one that does not explain them is not applied.
+	notes, warns, drop := testCurrentReference(o.curRef.path, doc, sv)
+	if drop != "" {
+		*o = orig
+		o.curRef.dropped = drop
+		return runLocate(ctx, o, logs, progress)
+	}
+	doc.Notes = append(doc.Notes, notes...)
+	doc.Warnings = append(doc.Warnings, warns...)
+	return doc, nil
 }
 
 // walkedSpan is the time from the first to the last DC reading of the
