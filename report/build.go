@@ -1030,6 +1030,9 @@ func heldRejected(notes []string) string {
 // ramp the straight-line model bends to) does not turn the whole route
 // into a pair.
 func followsPair(fits []Fit, ac bool) bool {
+	if twoFeeders(fits, ac) {
+		return false
+	}
 	strict, usable := 0, 0
 	for i := range fits {
 		_, st, ok := circuitOf(&fits[i], ac)
