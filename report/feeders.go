@@ -19,18 +19,20 @@ import "math"
 // its neighbours', not partnerOdd), parts them clearly (spacing beyond
 // feederK sigmas and at least feederMinSpacing of the centre's depth below
 // the readings), knows each current to feederCurrentShare, finds a net
-// current beyond feederK sigmas, and each core keeps its own current along
-// the route (within feederSteady of its median, or feederK sigmas). A
-// true circuit whose cores the survey resolves everywhere and whose
-// currents hold steady is then followed as two conductors too: the second
-// is read as conductor 1's return with the share it carries back and the
-// net left to other paths (returnShareClause), which is the same reading
-// in other words. Where the cores are not resolved at some group, or the
-// partner changes (a closer line beside conductor 1 in place of the
-// return, TestPairPartnerChangeCaveated), or a core's current changes, the
-// route stays a pair (followsPair): each core's current taken alone there
-// would read the unresolved pair's net, or another line's, as conductor 1's
-// (two false warnings in review of a per-group rule).
+// current beyond feederK sigmas and at least feederMinNet of the strongest
+// core's (a healthy circuit returns nearly all of it), and each core keeps
+// its own current along the route (within feederSteady of its median, or
+// feederK sigmas). A circuit that leaves a quarter or more of its current
+// to other paths and passes all of these is followed as two conductors
+// too: the second is read as flowing the other way to conductor 1 (a
+// return path, for example), in AC with the share it carries back and the
+// net left to other paths (returnShareClause), the same reading in other
+// words. Where the cores are not resolved at some group, or the partner
+// changes (a closer line beside conductor 1 in place of the return,
+// TestPairPartnerChangeCaveated), or a core's current changes, the route
+// stays a pair (followsPair): each core's current taken alone there would
+// read the unresolved pair's net, or another line's, as conductor 1's (two
+// false warnings in review of a per-group rule).
 
 // feederK is the number of sigmas by which two feeders' spacing and net
 // current must stand clear of zero (twoFeeders).
@@ -47,6 +49,14 @@ const feederCurrentShare = 0.05
 // feederSteady is the share of its median current by which each feeder's
 // current may differ from group to group (twoFeeders).
 const feederSteady = 0.1
+
+// feederMinNet is the least net current of two feeders, as a share of the
+// strongest core's: a circuit whose return carries back more than three
+// quarters of its go core's current stays one circuit (a healthy 30 A / 27 A
+// pair with an earth wire beside it, TestPairEarthWireNoFaultStep, nets
+// 10%; the two feeders of TestTwoFeedersFollowedApart 33%, rv28b's AC
+// feeders 49%).
+const feederMinNet = 0.25
 
 // feederMinGroups is the least number of groups that must show the two
 // feeders (twoFeeders).
@@ -76,7 +86,7 @@ func twoFeeders(fits []Fit, ac bool) bool {
 			return false
 		case !(s0.CurrentSigma <= feederCurrentShare*math.Abs(s0.Current)) || !(o.CurrentSigma <= feederCurrentShare*math.Abs(o.Current)):
 			return false
-		case !(math.Abs(p.NetCurrent) > feederK*p.NetCurrentSigma):
+		case !(math.Abs(p.NetCurrent) > feederK*p.NetCurrentSigma) || !(math.Abs(p.NetCurrent) >= feederMinNet*math.Abs(s0.Current)):
 			return false
 		}
 		a, sa = append(a, math.Abs(s0.Current)), append(sa, s0.CurrentSigma)

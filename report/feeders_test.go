@@ -2,6 +2,7 @@ package report
 
 import (
 	"math"
+	"strings"
 	"testing"
 )
 
@@ -50,6 +51,42 @@ func TestTwoFeedersFollowedApart(t *testing.T) {
 			if math.Abs(math.Abs(st.Current)-8) > 5*st.CurrentSigma+0.05 {
 				t.Errorf("seed %d: %s conductor 2 reads %.3f ± %.3f A, want 8 A", seed, st.Key, st.Current, st.CurrentSigma)
 			}
+		}
+	}
+}
+
+// TestTwoFeedersPartnerChangeStaysPair: feeders of 12 A and -8 A as in
+// TestTwoFeedersFollowedApart (net 33% of feeder A's, past feederMinNet),
+// but at the last two of eight traverses feeder B is gone and another line,
+// 3 A south at east 0.25 m, lies beside feeder A, as in
+// TestPairPartnerChangeCaveated. Those groups do not resolve the close
+// pair, so the route stays a pair (twoFeeders), and the change in its net
+// current there is worded as a change of the core paired with conductor 1,
+// no warning: taken as two feeders, conductor 1 would read the close
+// pair's 9 A net for feeder A's 12 A there.
+func TestTwoFeedersPartnerChangeStaysPair(t *testing.T) {
+	var lines [][]partnerLine
+	for i := range 8 {
+		ls := []partnerLine{{0, 0.8, 12}, {0.6, 0.8, -8}}
+		if i >= 6 {
+			ls = []partnerLine{{0, 0.8, 12}, {0.25, 0.8, -3}}
+		}
+		lines = append(lines, ls)
+	}
+	fits := partnerFits(t, 2, lines)
+	d, err := Build(Document{Title: "Sedge Ings feeders (invented)"}, fits, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if d.Route == nil || !d.Route.PairNet {
+		t.Fatal("want the route to follow the pair's net current")
+	}
+	for _, f := range d.Findings {
+		if f.Conductor > 1 || !strings.HasPrefix(f.Kind, "current-") {
+			continue
+		}
+		if !strings.Contains(f.Message, "change of the core paired with conductor 1") || f.Severity == SeverityWarning {
+			t.Errorf("finding %s %s: want it worded as a change of partner, not a warning: %s", f.Severity, f.Kind, f.Message)
 		}
 	}
 }
