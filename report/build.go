@@ -1028,8 +1028,12 @@ func heldRejected(notes []string) string {
 // circuitOf) find the strongest line in a pair by the strict test of
 // circuitOf. A pair at one or two groups of a single cable (a riser or a
 // ramp the straight-line model bends to) does not turn the whole route
-// into a pair.
+// into a pair. Two feeders that every group resolves, each keeping its
+// own current, are followed as two conductors instead (twoFeeders).
 func followsPair(fits []Fit, ac bool) bool {
+	if twoFeeders(fits, ac) {
+		return false
+	}
 	strict, usable := 0, 0
 	for i := range fits {
 		_, st, ok := circuitOf(&fits[i], ac)
