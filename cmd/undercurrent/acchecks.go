@@ -552,6 +552,35 @@ func longerMultiple(w, win float64) bool {
 // freqCheckUntrustedHz (found in review).
 const nyquistCheckBeats = 4
 
+// maxMainsHarmonic is the highest harmonic of the mains that a --freq on
+// it is worded as (mainsHarmonic): harmonic limits and measurements of
+// supply currents run to the 40th or the 50th (the IEC 61000 series, from
+// memory); a tracer at 8 kHz, the 160th of 50 Hz, is no mains harmonic.
+const maxMainsHarmonic = 50
+
+// mainsHarmonic reports whether freq is the k-th harmonic (2 <= k <=
+// maxMainsHarmonic) of a mains frequency m of pl.mains, to 1e-9 of freq
+// (as clash takes a signal on a mains line): an AC run there reads the
+// supply's harmonic currents, not a tracer's. Where freq is a harmonic of
+// both 50 and 60 Hz (300 Hz: the 6th of 50, the 5th of 60) an odd harmonic
+// is preferred (odd harmonics are the ones a supply carries; even ones
+// cancel in a current of half-wave symmetry), then the first of pl.mains.
+func (pl demodPlan) mainsHarmonic(freq float64) (k int, m float64, ok bool) {
+	for _, mm := range pl.mains {
+		if !(mm > 0) {
+			continue
+		}
+		kk := math.Round(freq / mm)
+		if kk < 2 || kk > maxMainsHarmonic || math.Abs(freq-kk*mm) >= 1e-9*freq {
+			continue
+		}
+		if !ok || k%2 == 0 && int(kk)%2 == 1 {
+			k, m, ok = int(kk), mm, true
+		}
+	}
+	return k, m, ok
+}
+
 // nearestMains returns the odd harmonic h of the mains frequency m (of
 // pl.mains, below 0.45 of the sample rate) nearest f; false with no mains.
 func (pl demodPlan) nearestMains(f float64) (h, m float64, ok bool) {
@@ -578,6 +607,9 @@ func (pl demodPlan) clash(s *ingest.Samples, res *calibrate.DemodResult, freq, w
 	if calibrate.MainsNuisance(freq, win, pl.fs, pl.mains, nil) == nil {
 		return ""
 	}
+	if k, m, ok := pl.mainsHarmonic(freq); ok {
+		return pl.harmonicWords(freq, k, m)
+	}
 	sep := calibrate.NuisanceSeparation(win)
 	if h, m, ok := pl.nearestMains(freq); ok {
 		d := math.Abs(freq - h*m)
@@ -596,6 +628,33 @@ func (pl demodPlan) clash(s *ingest.Samples, res *calibrate.DemodResult, freq, w
 		}
 	}
 	return ""
+}
+
+// harmonicWords says what an AC run at freq, the k-th harmonic of the
+// mains at m Hz (mainsHarmonic), reads: the supply's harmonic currents in
+// the conductors, which a tracer at freq could not be told from. Before,
+// it was worded for a tracer only ("choose another frequency for the
+// tracer"), on a run whose 150 Hz was the neutral's triplen current (found
+// in review). How a harmonic's currents sum over three phases follows from
+// its order: the k-th harmonic of a phase at angle a runs at k·a, so with
+// phases 120° apart the triplens (k a multiple of 3) are in phase on all
+// three and add in the neutral, k = 3n+1 keep the supply's phase sequence
+// and k = 3n+2 reverse it, both cancelling in the neutral as far as the
+// phases balance (the symmetrical components of harmonics: common
+// power-quality practice).
+func (pl demodPlan) harmonicWords(freq float64, k int, m float64) string {
+	name := harmonicName(float64(k))
+	var seq string
+	switch k % 3 {
+	case 0:
+		seq = fmt.Sprintf("the %s is a triplen (a multiple of the 3rd): the three phases' currents at it are in phase, so they add in the neutral (three times a phase's where the phases carry alike) instead of cancelling", name)
+	case 1:
+		seq = fmt.Sprintf("the %s's currents on the three phases keep the supply's phase sequence, and cancel in the neutral as far as the phases balance", name)
+	default:
+		seq = fmt.Sprintf("the %s's currents on the three phases run in the reverse phase sequence, and cancel in the neutral as far as the phases balance", name)
+	}
+	return fmt.Sprintf("the signal's %s Hz is the %s of the %g Hz mains: the currents read are the supply's %s currents in the conductors (RMS, their phases against each other), not a tracer's, and a tracer at this frequency could not be told from them; in a three-phase circuit %s",
+		pl.signalHz(freq), name, m, name, seq)
 }
 
 // foldClash warns when a mains odd harmonic above the Nyquist frequency
@@ -1116,7 +1175,22 @@ func demodulateACLeftOut(o *locateOptions, s *ingest.Samples, leftOut []float64)
 		return res, win, res.Warnings, hints, nil
 	}
 	dec := freqDecimals(est.sigma)
-	if !est.trusted && math.Abs(off) <= freqCheckUntrustedHz {
+	untrusted := freqCheckUntrustedHz
+	if k, _, ok := pl.mainsHarmonic(o.freq); ok {
+		// At the k-th harmonic of the mains the grid's own offset is k
+		// times the fundamental's, while the walk's is not: the cores of a
+		// circuit carry a harmonic at phases as different as the
+		// fundamental's (the 5th in reversed sequence), and walked one way
+		// over a four-wire circuit with a 5th harmonic of 15 % (0.3 m
+		// apart at 0.8 m, testdata/scenarios/open/lv-harmonics.toml) the
+		// 250 Hz windows read 250.0138 ± 0.0003 Hz, spread 0.0083 Hz, with
+		// no 50 Hz field in the log at all; taken as the grid's, the log
+		// was demodulated there, every group turned 80° and fitted with
+		// phantom lines and false steps. The limit is the same grid
+		// offset as at the fundamental.
+		untrusted *= float64(k)
+	}
+	if !est.trusted && math.Abs(off) <= untrusted {
 		// Walked one way only: the offset may be the walk's, not the grid's.
 		// Its share left in the mean is of the order of the windows' spread
 		// beyond their noise (freqEstimate.spread), which the sigma above
@@ -1199,7 +1273,13 @@ func demodulateACLeftOut(o *locateOptions, s *ingest.Samples, leftOut []float64)
 	// unfitted by --mains 60 among them (found in review).
 	pe := pl
 	pe.dec = dec
-	if w := pe.clash(s, again, est.freq, win2); w != "" {
+	w := pe.clash(s, again, est.freq, win2)
+	if k, m, ok := pl.mainsHarmonic(o.freq); ok {
+		// On a grid off its nominal the k-th harmonic follows it (k times
+		// the offset): still the supply's harmonic, not a line beside it.
+		w = pe.harmonicWords(est.freq, k, m)
+	}
+	if w != "" {
 		again.Warnings = append([]string{w}, again.Warnings...)
 	}
 	if w := pe.foldClash(s, again, est.freq, win2); w != "" {

@@ -133,6 +133,9 @@
 //	current_a = 40                    # or currents_a = [...] per segment
 //	frequency_hz = 50                 # optional: AC, current_a is RMS
 //	phase_deg = 0
+//	harmonics = [{frequency_hz = 250, current_a = 6, phase_deg = 30}]
+//	                                  # optional: further tones, steady
+//	                                  #   (line, or polyline with current_a)
 //	change_at_s = 30                  # optional: from 30 s after the first
 //	current_after_a = 32              #   reading on, 32 A (one current_a only)
 //

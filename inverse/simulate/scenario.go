@@ -224,6 +224,11 @@ type Conductor struct {
 	Frequency float64 `toml:"frequency_hz"`
 	// Phase is the AC phase at Unix time zero, degrees.
 	Phase float64 `toml:"phase_deg"`
+	// Harmonics are further tones a line or polyline carries besides its
+	// current_a at frequency_hz (mains harmonics: a supply core's 5th, a
+	// neutral's 3rd), each in every segment and steady through a
+	// change_at_s; the field is the sum.
+	Harmonics []Tone `toml:"harmonics"`
 
 	// ChangeAt, when set, is when the current changes, s after the first
 	// reading; from then on the conductor carries CurrentAfter (RMS for
@@ -236,6 +241,16 @@ type Conductor struct {
 	// cable tray over a walkway): a horizontal line at least 0.5 m above
 	// the sensor height, which walked surveys otherwise refuse.
 	Overhead bool `toml:"overhead"`
+}
+
+// Tone is one further frequency a conductor carries (Conductor.Harmonics).
+type Tone struct {
+	// Frequency is the tone's frequency, Hz, above zero.
+	Frequency float64 `toml:"frequency_hz"`
+	// Current is its RMS current, A, along the conductor's direction.
+	Current float64 `toml:"current_a"`
+	// Phase is its phase at Unix time zero, degrees.
+	Phase float64 `toml:"phase_deg"`
 }
 
 // Limits on what a scenario may ask for, so that a typing slip cannot fill
@@ -428,6 +443,42 @@ func (sc *Scenario) validateSensor() error {
 	return nil
 }
 
+// validateHarmonics checks conductor i's further tones: each at its own
+// frequency, above zero and below half the sample rate, on a line or a
+// polyline with one current in every segment.
+func (sc *Scenario) validateHarmonics(i int) error {
+	c := &sc.Conductors[i]
+	if len(c.Harmonics) == 0 {
+		return nil
+	}
+	bad := func(format string, a ...any) error {
+		return sc.errAt("conductor", i, "harmonics", "conductor %d (%q): %s", i+1, c.Name, fmt.Sprintf(format, a...))
+	}
+	if c.Kind != "line" && c.Kind != "polyline" {
+		return bad("harmonics are for a line or a polyline")
+	}
+	if len(c.Currents) > 0 {
+		return bad("harmonics are for a conductor with one current in every segment (no currents_a)")
+	}
+	for j, h := range c.Harmonics {
+		if !finite(h.Frequency, h.Current, h.Phase) {
+			return bad("harmonic %d: frequency, current and phase must be finite numbers", j+1)
+		}
+		if h.Frequency <= 0 || h.Frequency >= sc.rate()/2 {
+			return bad("harmonic %d: %g Hz must be above 0 and below half the sample rate (%g Hz)", j+1, h.Frequency, sc.rate()/2)
+		}
+		if h.Frequency == c.Frequency {
+			return bad("harmonic %d: %g Hz is the conductor's own frequency_hz (give one current per frequency)", j+1, h.Frequency)
+		}
+		for k := range j {
+			if c.Harmonics[k].Frequency == h.Frequency {
+				return bad("harmonics %d and %d are both at %g Hz", k+1, j+1, h.Frequency)
+			}
+		}
+	}
+	return nil
+}
+
 func (sc *Scenario) validateConductor(i int) error {
 	c := &sc.Conductors[i]
 	bad := func(key, format string, a ...any) error {
@@ -441,6 +492,9 @@ func (sc *Scenario) validateConductor(i int) error {
 	}
 	if c.Frequency > 0 && c.Frequency >= sc.rate()/2 {
 		return bad("frequency_hz", "%g Hz is not below half the sample rate (%g Hz): the log could not resolve it", c.Frequency, sc.rate()/2)
+	}
+	if err := sc.validateHarmonics(i); err != nil {
+		return err
 	}
 	switch c.Kind {
 	case "line":

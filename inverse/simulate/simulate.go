@@ -77,6 +77,39 @@ func (sc *Scenario) sources() []source {
 	return out
 }
 
+// harmonicSources builds the forward models of the conductors' further
+// tones (Conductor.Harmonics), one source each, after all the conductors'
+// own: they add to the log and to the peaks at their frequency, not to a
+// conductor's own peak (PeakFields).
+func (sc *Scenario) harmonicSources() []source {
+	var out []source
+	for _, c := range sc.Conductors {
+		for _, h := range c.Harmonics {
+			s := source{ac: true, freq: h.Frequency, phase: h.Phase * math.Pi / 180, changeAt: math.Inf(1)}
+			cur := h.Current
+			switch c.Kind {
+			case "line":
+				d := *c.Direction
+				n := norm(d)
+				l := inverse.Line{Point: *c.Point, Dir: [3]float64{d[0] / n, d[1] / n, d[2] / n}}
+				s.field = func(r [3]float64) [3]float64 { return scale(l.Field(r, cur), teslaToNT) }
+			case "polyline":
+				p := inverse.Polyline{Vertices: c.Vertices}
+				curs := make([]float64, len(c.Vertices)-1)
+				for i := range curs {
+					curs[i] = cur
+				}
+				s.field = func(r [3]float64) [3]float64 { return scale(p.Field(r, curs), teslaToNT) }
+			default:
+				continue
+			}
+			s.after = s.field
+			out = append(out, s)
+		}
+	}
+	return out
+}
+
 // segmentCurrents is the current in each segment of a polyline.
 func (c *Conductor) segmentCurrents() []float64 {
 	if len(c.Currents) > 0 {
@@ -218,7 +251,7 @@ func Simulate(sc *Scenario) (*ingest.Samples, error) {
 		s.Frame = ingest.FrameSensor
 		s.Roll, s.Pitch, s.Yaw = make([]float64, n), make([]float64, n), make([]float64, n)
 	}
-	srcs := sc.sources()
+	srcs := append(sc.sources(), sc.harmonicSources()...)
 	sen := sc.Sensor
 	// Each line has its own noise stream, seeded from the scenario's seed
 	// and the line's index, so that lines can be simulated in parallel and
@@ -418,7 +451,7 @@ type FrequencyPeak struct {
 // (PeakFields) suggests: a balanced trefoil of 100 A cores at 1 m read
 // 16099 nT a core and 1451 nT together (found in review).
 func (sc *Scenario) PeakTotalFields() []FrequencyPeak {
-	srcs := sc.sources()
+	srcs := append(sc.sources(), sc.harmonicSources()...)
 	var out []FrequencyPeak
 	band := make([]int, len(srcs))
 	for i, src := range srcs {

@@ -27,6 +27,9 @@ type Crossing struct {
 	// Frequency is the AC frequency, Hz (0 for DC), and Phase the phase at
 	// Unix time zero, degrees.
 	Frequency, Phase float64
+	// Harmonics are the conductor's further tones (Conductor.Harmonics),
+	// the same in every segment.
+	Harmonics []Tone
 	// Depth is the conductor's depth below the ground (up = 0), m.
 	Depth float64
 	// Along is the distance along the survey line from its start, m.
@@ -109,6 +112,7 @@ func (sc *Scenario) crossing(l Line, t0 float64, ci int, c Conductor, s float64,
 		Current:   current,
 		Frequency: c.Frequency,
 		Phase:     c.Phase,
+		Harmonics: c.Harmonics,
 		Depth:     -pt[2],
 		Along:     along,
 		Time:      at,
