@@ -64,20 +64,7 @@ func TestWholeAssetSilenceAlarm(t *testing.T) {
 	h.publish(0, 1)
 	var alarms []Alarm
 	read := func() bool {
-		alarms = alarms[:0]
-		ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
-		defer cancel()
-		err := scan(ctx, h.js, broker.StreamAlarms, broker.AlarmSubject("fenwick-lane", AlarmSilent), func(d []byte) bool {
-			var a Alarm
-			if err := json.Unmarshal(d, &a); err != nil {
-				t.Fatal(err)
-			}
-			alarms = append(alarms, a)
-			return true
-		})
-		if err != nil {
-			t.Fatal(err)
-		}
+		alarms = silentAlarms(t, h)
 		return len(alarms) > 0
 	}
 	waitFor(t, 30*time.Second, "the asset's silent alarm", read)
@@ -107,20 +94,7 @@ func TestWholeAssetSilenceCleared(t *testing.T) {
 	h.publish(0, 1) // windows 0, 1
 	var alarms []Alarm
 	read := func() {
-		alarms = alarms[:0]
-		ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
-		defer cancel()
-		err := scan(ctx, h.js, broker.StreamAlarms, broker.AlarmSubject("fenwick-lane", AlarmSilent), func(d []byte) bool {
-			var a Alarm
-			if err := json.Unmarshal(d, &a); err != nil {
-				t.Fatal(err)
-			}
-			alarms = append(alarms, a)
-			return true
-		})
-		if err != nil {
-			t.Fatal(err)
-		}
+		alarms = silentAlarms(t, h)
 	}
 	waitFor(t, 30*time.Second, "the asset's silent alarm", func() bool { read(); return len(alarms) > 0 })
 	for _, a := range alarms {
@@ -156,4 +130,25 @@ func TestWholeAssetSilenceCleared(t *testing.T) {
 		t.Errorf("cleared record %+v, want window %d with no subject, since %v, 2 windows, threshold 1", off, k0+4, on.Start)
 	}
 	r.stop(t)
+}
+
+// silentAlarms reads the asset fenwick-lane's silent alarms, onsets and
+// cleared records, in the order stored.
+func silentAlarms(t *testing.T, h *harness) []Alarm {
+	t.Helper()
+	var alarms []Alarm
+	ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
+	defer cancel()
+	err := scan(ctx, h.js, broker.StreamAlarms, broker.AlarmSubject("fenwick-lane", AlarmSilent), func(d []byte) bool {
+		var a Alarm
+		if err := json.Unmarshal(d, &a); err != nil {
+			t.Fatal(err)
+		}
+		alarms = append(alarms, a)
+		return true
+	})
+	if err != nil {
+		t.Fatal(err)
+	}
+	return alarms
 }

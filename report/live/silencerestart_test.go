@@ -29,22 +29,12 @@ func TestSilentAlarmOncePerSilenceAcrossRestarts(t *testing.T) {
 	alarms := func() []Alarm {
 		var out []Alarm
 		cleared = 0
-		ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
-		defer cancel()
-		err := scan(ctx, h.js, broker.StreamAlarms, broker.AlarmSubject("fenwick-lane", AlarmSilent), func(d []byte) bool {
-			var a Alarm
-			if err := json.Unmarshal(d, &a); err != nil {
-				t.Fatal(err)
-			}
+		for _, a := range silentAlarms(t, h) {
 			if a.Cleared {
 				cleared++
 			} else {
 				out = append(out, a)
 			}
-			return true
-		})
-		if err != nil {
-			t.Fatal(err)
 		}
 		return out
 	}
