@@ -263,6 +263,7 @@ func fitLinesFloor(p *Problem, set *Settings, wantFloor bool, floor *float64) (*
 	// mean anything), hold them and say so.
 	var bad bool
 	var why string
+	k := 2.0
 	if err != nil {
 		bad, why = true, err.Error()
 	} else if s.Count > 1 {
@@ -276,7 +277,8 @@ func fitLinesFloor(p *Problem, set *Settings, wantFloor bool, floor *float64) (*
 			bad, why = singleAnglesAtEdge(res, f.currentK())
 		}
 		if !bad {
-			bad, why = sv.obliqueBeyondEnd(res, f.currentK())
+			k = f.currentK()
+			bad, why = sv.obliqueBeyondEnd(res, k)
 		}
 	} else {
 		bad, why = singleAnglesUndetermined(res)
@@ -339,15 +341,24 @@ func fitLinesFloor(p *Problem, set *Settings, wantFloor bool, floor *float64) (*
 		// beyond their sigmas (a 15 A cable 50 degrees off the perpendicular,
 		// beyond the end of a 24 m traverse, read 24.6 ± 2.2 A held; a false
 		// "current joining" followed), and neither fit is to be used.
-		if d, lim, ok := holdRejected(res, res2); ok {
-			res2.Notes = append(res2.Notes, fmt.Sprintf("%s: holding them fits the readings clearly worse than leaving them free (chi-square higher by %.3g; more than %.3g, the 99.73%% point for the angles held), so the line does not cross the traverse square to it and level; its current and position are off by more than their uncertainties say (a conductor beyond the traverse's end, or crossing it obliquely: survey across it there)",
+		d, lim, rejected := holdRejected(res, res2)
+		if rejected && strings.HasPrefix(why, "line 1 crosses") && strings.Contains(why, beyondEndWhy) && sv.placedBeside(res, k) {
+			// Line 1 beyond the end, too oblique to be fitted, beside a
+			// line the readings place under them (placedBeside): the free
+			// fit stands, line 1 a further line whose angles are loose.
+			res.Notes = append(res.Notes, fmt.Sprintf("%s; holding the angles perpendicular to it and horizontal fits the readings clearly worse (chi-square higher by %.3g; more than %.3g, the 99.73%% point for the angles held), and another line crosses the traverse within its readings: the angles are fitted, and line 1's values are loose (it is seen from one side)", why, d, lim))
+			res.Starts += g.starts
+			return res, nil
+		}
+		if rejected {
+			res2.Notes = append(res2.Notes, fmt.Sprintf("%s: holding them fits the readings clearly worse than leaving them free (chi-square higher by %.3g; more than %.3g, the 99.73%% point for the angles held), so the line does not cross the traverse square to it and level; its current and position are off by more than their uncertainties say (a conductor beyond the traverse's end, or crossing it obliquely: survey across it there where it is safe to; one that may be live, such as rails or a cable at the surface, is not walked across)",
 				HeldAnglesRejectedNote, d, lim))
 		} else if len(res2.Sources) > 0 && slices.Contains(res2.Sources[0].Notes, EdgeOfSearchNote) {
 			// Nor is a held fit whose line has run to the edge of the search:
 			// the readings would put it further out still (beside the same
 			// cable beyond a traverse's end, read 19.9 ± 2.1 A, 2.3 sigma high,
 			// 29 m from the readings' centre).
-			res2.Notes = append(res2.Notes, HeldAnglesRejectedNote+": with them held the line runs to the edge of the search region, so the line does not cross the traverse square to it and level; its current and position are off by more than their uncertainties say (a conductor beyond the traverse's end, or crossing it obliquely: survey across it there)")
+			res2.Notes = append(res2.Notes, HeldAnglesRejectedNote+": with them held the line runs to the edge of the search region, so the line does not cross the traverse square to it and level; its current and position are off by more than their uncertainties say (a conductor beyond the traverse's end, or crossing it obliquely: survey across it there where it is safe to; one that may be live, such as rails or a cable at the surface, is not walked across)")
 		}
 	}
 	return res2, nil
@@ -1115,26 +1126,55 @@ func (sv *survey) obliqueBeyondEnd(r *Result, k float64) (bool, string) {
 	if e.Kind != "line" || !e.Identifiable.Azimuth || !(math.Abs(e.Current) > k*e.CurrentSigma) {
 		return false, ""
 	}
+	t, off, ok := sv.crossing(&e)
+	if !ok || !(off > singleBeyondEndRange) || !(math.Abs(t) > sv.extent) {
+		return false, ""
+	}
+	return true, fmt.Sprintf("line 1 crosses the traverse's line %.1f m from the readings' centre, %s (%.1f m), %.0f deg from square to it: seen over a short arc from one side, a line so oblique is not fitted from one traverse",
+		math.Abs(t), beyondEndWhy, sv.extent, off*180/math.Pi)
+}
+
+// placedBeside reports whether a single-traverse result r, whose line 1 runs
+// beyond the readings' end too obliquely to be fitted (obliqueBeyondEnd), holds
+// another line over k sigmas that crosses the traverse within its readings and
+// within singleBeyondEndRange of square: a conductor the readings place, beside
+// which line 1 is a further line (FitLines keeps such a fit when holding the
+// angles square is rejected). Review rv29c: a CP pipe 1.74 A 1.5 m down under
+// traverses ending 0.9 m short of a DC railway's near rail (15 A, 60 degrees
+// from square, line 1): the rail fitted 63 degrees from square, all angles were
+// held square, rejected, and the group failed although the pipe was placed.
+func (sv *survey) placedBeside(r *Result, k float64) bool {
+	for i := 1; i < len(r.Sources); i++ {
+		o := &r.Sources[i]
+		if o.Kind != "line" || !(math.Abs(o.Current) > k*o.CurrentSigma) || keptNote(o) {
+			continue
+		}
+		if ot, ooff, ok := sv.crossing(o); ok && ooff <= singleBeyondEndRange && math.Abs(ot) <= sv.extent {
+			return true
+		}
+	}
+	return false
+}
+
+// crossing returns where line e's horizontal projection meets the traverse's line,
+// as the distance t from the readings' centre along it (signed), and how far from
+// square to the traverse the line runs (radians); ok is false for a line with no
+// horizontal direction or one along the traverse.
+func (sv *survey) crossing(e *SourceEstimate) (t, off float64, ok bool) {
 	d := [3]float64{e.Dir[0], e.Dir[1], 0}
 	n := norm(d)
 	if n == 0 {
-		return false, ""
+		return 0, 0, false
 	}
 	d = scale(d, 1/n)
-	if math.Abs(dot(d, sv.t1)) <= math.Sin(singleBeyondEndRange) {
-		return false, ""
-	}
-	// Where the line's horizontal projection meets the traverse's line
-	// (centroid + t t1): t = ((P - c) x d) / (t1 x d), not zero here.
+	// (centroid + t t1): t = ((P - c) x d) / (t1 x d).
 	cr := sv.t1[0]*d[1] - sv.t1[1]*d[0]
-	pc := [2]float64{e.Point[0] - sv.centroid[0], e.Point[1] - sv.centroid[1]}
-	t := (pc[0]*d[1] - pc[1]*d[0]) / cr
-	if !(math.Abs(t) > sv.extent) {
-		return false, ""
+	if cr == 0 {
+		return 0, math.Pi / 2, false
 	}
-	off := math.Asin(math.Min(1, math.Abs(dot(d, sv.t1)))) * 180 / math.Pi
-	return true, fmt.Sprintf("line 1 crosses the traverse's line %.1f m from the readings' centre, %s (%.1f m), %.0f deg from square to it: seen over a short arc from one side, a line so oblique is not fitted from one traverse",
-		math.Abs(t), beyondEndWhy, sv.extent, off)
+	pc := [2]float64{e.Point[0] - sv.centroid[0], e.Point[1] - sv.centroid[1]}
+	t = (pc[0]*d[1] - pc[1]*d[0]) / cr
+	return t, math.Asin(math.Min(1, math.Abs(dot(d, sv.t1)))), true
 }
 
 // singleAnglesUndetermined reports whether a single-traverse result fitted some line's

@@ -1296,7 +1296,11 @@ func buildGroup(f *Fit, ac bool, refSigma float64, profileMax int, pairRoute boo
 	var lost string
 	var lostFail bool
 	if g.OK && !weak && near == "" && above == "" && pair == nil {
-		lost, lostFail = lostLineProblem(res)
+		noise := f.MeasuredNoise
+		if !(noise > 0) {
+			noise = refSigma
+		}
+		lost, lostFail = lostLineProblem(res, noise)
 	}
 	// The conductor's line stood up to the dip's bound (dipAtBound).
 	var steep string

@@ -19,7 +19,8 @@ type coverAt struct {
 	chainage     float64
 	cover, sigma float64
 	doubt        string
-	pair         bool // a further conductor that is a go-and-return pair (Route.PairNet)
+	current      float64 // a further line's current, A (shallowLoneLine)
+	pair         bool    // a further conductor that is a go-and-return pair (Route.PairNet)
 	// precise, when not empty, gives the best determined station beside a
 	// loosely fitted shallowest one (preciseCoverOf): "T06: 0.347 ± 0.005".
 	precise string

@@ -1572,6 +1572,9 @@ func LeastCover(d *Document) string {
 			// rv28b; its finding says why).
 			why = "not linked into a track of its own: a cable or pipe along the route, for example; see its cover finding"
 		}
+		if w := route.ShallowStrong(l.current, l.cover); w != "" {
+			why = "seen at too few traverses: " + w
+		}
 		line += fmt.Sprintf("; a further line that no conductor follows (%s) lies shallower, under %s m at %s (chainage %.0f m)", why, pm(l.cover, l.sigma), l.key, l.chainage)
 		if g := d.groupByKey(l.key); g != nil && d.BaseGapOnly(g) {
 			// Its fit is sound; the base correction under it needs review.
@@ -1640,7 +1643,7 @@ func (d *Document) shallowLoneLine() (c coverAt, ok bool) {
 			if !okC || ok && cv >= c.cover {
 				continue
 			}
-			c, ok = coverAt{key: g.Key, cover: cv, sigma: d.coverSigma(s.DepthSigma)}, true
+			c, ok = coverAt{key: g.Key, cover: cv, sigma: d.coverSigma(s.DepthSigma), current: s.Current}, true
 			if a, okA := route.PlanAngle(s.Direction, g.Sources[0].Direction); okA && a < route.AlongAngle {
 				c.along = true
 			}

@@ -20,7 +20,13 @@ const minDepthNote = "held at the minimum depth below the sensors"
 // its station keeps the readings' centroid. Before, on six fixed sensors over a weak
 // pipe, such a line 1.24 m above the sensors at the edge of the region was counted
 // sound, with no finding.
-func lostLineProblem(res *inverse.Result) (why string, fail bool) {
+// lostMissLimit is how many times the noise (nT: the group's readings' own, else the
+// survey's reference noise) the RMS residual of a lone lost line's fit may miss the readings by before
+// lostLineProblem no longer says that no conductor is found below: the limit of a
+// sound fit elsewhere in the report (3 times the noise).
+const lostMissLimit = 3.0
+
+func lostLineProblem(res *inverse.Result, noise float64) (why string, fail bool) {
 	if len(res.Sources) != 1 || len(res.Pairs) > 0 || res.Sources[0].Kind == KindDipole {
 		return "", false
 	}
@@ -49,6 +55,16 @@ func lostLineProblem(res *inverse.Result) (why string, fail bool) {
 		return "", false
 	}
 	why = "the only line fitted lies " + strings.Join(where, ", ") + ": the readings do not place it"
+	if miss := res.RMS / noise; (edge || above) && noise > 0 && miss > lostMissLimit {
+		// A fit that misses the readings far beyond their noise describes
+		// nothing, what lies below included. Review rv29c: beside a DC
+		// railway with an overhead contact wire beyond the traverses' ends,
+		// the one line fitted lay above the sensors, missing the readings by
+		// 140 times the noise, over a CP pipe whose field was 230-500 times
+		// the noise, and the group read "no conductor is found under this
+		// group": a false all-clear at a crossing.
+		return why + fmt.Sprintf(", and the fit misses the readings by %.3g times their noise, so it says nothing of what lies under this group: a strong field from a conductor beside or above the traverse (rails, an overhead line, a cable at the surface) can hide a buried one; take the ground here as unsearched, not clear, and where what lies beside the traverse may be live, survey it by approved means from where it is safe, not by walking across it", miss), true
+	}
 	if edge || above {
 		return why + ", and no conductor is found under this group (one too deep or weak for these readings may lie there)", true
 	}

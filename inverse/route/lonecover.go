@@ -147,6 +147,14 @@ func loneWhy(keys, inLine []string, l Line, dir [3]float64) string {
 	if along {
 		what = "a cable or pipe along the route, for example"
 	}
+	if w := ShallowStrong(l.Current, l.Depth); w != "" {
+		// Review rv29c: two rails of a DC railway, 75 A each 0.05 m down,
+		// were "a crossing service, for example".
+		what = w
+		if len(keys) == 1 && len(inLine) == 0 {
+			return "too few groups show it: " + w
+		}
+	}
 	if l.TrackMin > 0 && n >= l.TrackMin {
 		return fmt.Sprintf("the fits at %s show a line in line with it too, %d groups in all, enough to follow it, but their fitted positions do not link into one track from group to group: the fits between place it elsewhere, miss it or take it into a go-and-return pair or the conductor followed (%s)", andList(inLine), n, what)
 	}
@@ -166,6 +174,28 @@ func loneWhy(keys, inLine []string, l Line, dir [3]float64) string {
 		return "too few groups show it: a conductor along the route that the other fits do not resolve, for example"
 	}
 	return "too few groups show it: a crossing service, or a conductor the other fits do not resolve"
+}
+
+// ShallowStrongCurrent (A) and ShallowStrongDepth (m) are the least current and
+// the greatest depth below the depth reference of a shallow strong line
+// (ShallowStrong): tens of amperes within 0.2 m of the ground is no buried
+// service's return current, but rails or a cable on or at the surface.
+const (
+	ShallowStrongCurrent = 10.0
+	ShallowStrongDepth   = 0.2
+)
+
+// ShallowStrong words a further line carrying current (A, the sign ignored) at
+// depth (m below the depth reference) when it carries ShallowStrongCurrent or
+// more within ShallowStrongDepth of the ground, and returns "" otherwise: such a
+// line is rails or a cable at the surface, to be treated as live, not "a
+// crossing service". Review rv29c: a DC railway's rails, 75 A each 0.05 m down,
+// fitted right beside a CP pipe, were worded "a crossing service, for example".
+func ShallowStrong(current, depth float64) string {
+	if !(math.Abs(current) >= ShallowStrongCurrent) || !(depth <= ShallowStrongDepth) {
+		return ""
+	}
+	return fmt.Sprintf("a shallow line carrying %.0f A: rails or a cable at the surface; treat it as live", math.Abs(current))
 }
 
 // AlongAngle is the angle in plan, degrees, within which a lone line runs
