@@ -25,17 +25,7 @@ func TestRetentionServeBoundsEstimateAndAlarmStreams(t *testing.T) {
 	if testing.Short() {
 		t.Skip("runs a broker and the service")
 	}
-	srv, err := broker.StartServer(broker.ServerConfig{StoreDir: t.TempDir(), MQTTPort: -1})
-	if err != nil {
-		t.Fatal(err)
-	}
-	t.Cleanup(srv.Shutdown)
-	nc, err := broker.Connect(srv.ClientURL(), "test-publisher", broker.Auth{})
-	if err != nil {
-		t.Fatal(err)
-	}
-	t.Cleanup(nc.Close)
-	js, _ := jetstream.New(nc)
+	srv, nc, js := startTestBroker(t, t.TempDir())
 	ctx, cancel := context.WithTimeout(context.Background(), 60*time.Second)
 	defer cancel()
 	// The streams as serve made them before: no max age, no byte bound.

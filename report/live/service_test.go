@@ -113,9 +113,12 @@ func (h *harness) runConfig(t testing.TB, cfg Config, user string) (svc *Service
 	}
 }
 
-func newHarness(t testing.TB) *harness {
+// startTestBroker starts an embedded broker storing in dir, without an
+// MQTT listener, and connects to it as a publisher; both are shut down
+// when the test ends.
+func startTestBroker(t testing.TB, dir string) (*broker.Server, *nats.Conn, jetstream.JetStream) {
 	t.Helper()
-	srv, err := broker.StartServer(broker.ServerConfig{StoreDir: t.TempDir(), MQTTPort: -1})
+	srv, err := broker.StartServer(broker.ServerConfig{StoreDir: dir, MQTTPort: -1})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -126,6 +129,12 @@ func newHarness(t testing.TB) *harness {
 	}
 	t.Cleanup(nc.Close)
 	js, _ := jetstream.New(nc)
+	return srv, nc, js
+}
+
+func newHarness(t testing.TB) *harness {
+	t.Helper()
+	srv, nc, js := startTestBroker(t, t.TempDir())
 	ctx, cancel := context.WithTimeout(context.Background(), 20*time.Second)
 	defer cancel()
 	if _, err := broker.Setup(ctx, js, broker.StreamSettings{LeaseTTL: time.Second}); err != nil {

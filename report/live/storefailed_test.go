@@ -11,8 +11,6 @@ import (
 	"testing"
 	"time"
 
-	"github.com/nats-io/nats.go/jetstream"
-
 	"undercurrent/ingest/broker"
 )
 
@@ -30,17 +28,7 @@ func TestStoreWriteFailureLoggedOnce(t *testing.T) {
 		t.Skip("runs a broker and the service")
 	}
 	dir := t.TempDir()
-	srv, err := broker.StartServer(broker.ServerConfig{StoreDir: dir, MQTTPort: -1})
-	if err != nil {
-		t.Fatal(err)
-	}
-	t.Cleanup(srv.Shutdown)
-	nc, err := broker.Connect(srv.ClientURL(), "test-publisher", broker.Auth{})
-	if err != nil {
-		t.Fatal(err)
-	}
-	t.Cleanup(nc.Close)
-	js, _ := jetstream.New(nc)
+	srv, nc, js := startTestBroker(t, dir)
 	h := &harness{t: t, srv: srv, js: js, nc: nc}
 	logs := &syncBuffer{}
 	svc, stop := h.runConfig(t, Config{Site: testSite(t, testSiteText), Worker: "w1", NewEstimator: newMean,
