@@ -26,14 +26,7 @@ func TestCompareSubThresholdStep(t *testing.T) {
 		t.Skip("fits 42 traverses")
 	}
 	old, _ := kestrelDoc(t, 1, nil)
-	newDoc, _ := kestrelDoc(t, 2, func(sc *simulate.Scenario) {
-		for i := range sc.Conductors {
-			c := &sc.Conductors[i]
-			for k := 13; k < len(c.Currents); k++ {
-				c.Currents[k] -= 0.07
-			}
-		}
-	})
+	newDoc, _ := kestrelDoc(t, 2, func(sc *simulate.Scenario) { lowerFrom(sc, 13, 0.07) })
 	c, err := Compare(old, newDoc, "old/results.json", "new/results.json", CompareSettings{})
 	if err != nil {
 		t.Fatal(err)

@@ -111,11 +111,9 @@ func TestCompareFindsPlantedChanges(t *testing.T) {
 	}
 	old, oldSc := kestrelDoc(t, 1, nil)
 	newDoc, newSc := kestrelDoc(t, 2, func(sc *simulate.Scenario) {
+		lowerFrom(sc, 13, 0.2)
 		for i := range sc.Conductors {
 			c := &sc.Conductors[i]
-			for k := 13; k < len(c.Currents); k++ {
-				c.Currents[k] -= 0.2
-			}
 			for k := range c.Vertices {
 				if x := c.Vertices[k][0]; math.Abs(x-89.89) < 0.1 || math.Abs(x-109.86) < 0.1 {
 					c.Vertices[k][2] += 0.4
@@ -374,6 +372,17 @@ func TestCompareHeldSigmaJSON(t *testing.T) {
 	for _, s := range c.Conductors[0].Stations {
 		if s.OldKey == old.Route.Stations[2].Key && (s.CurrentZ != 0 || s.CurrentFlag) {
 			t.Errorf("%s: z %g, flagged %v, want a change not judged against a sigma of 0", s.OldKey, s.CurrentZ, s.CurrentFlag)
+		}
+	}
+}
+
+// lowerFrom plants a loss in a scenario: every conductor's current from
+// segment k0 on is lowered by amount amperes.
+func lowerFrom(sc *simulate.Scenario, k0 int, amount float64) {
+	for i := range sc.Conductors {
+		c := &sc.Conductors[i]
+		for k := k0; k < len(c.Currents); k++ {
+			c.Currents[k] -= amount
 		}
 	}
 }
